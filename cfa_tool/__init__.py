@@ -1,0 +1,22 @@
+"""cfa_tool: confirmatory factor analysis for questionnaire research.
+
+Entry points: :func:`fit` (fit a model to data) and :func:`check` (validate a
+model against data without fitting).  Heavy modules load on first use.
+"""
+
+from __future__ import annotations
+
+__version__ = "0.1.0"
+__all__ = ["fit", "check", "parse_model", "__version__"]
+
+
+def __getattr__(name: str):
+    if name in ("fit", "check"):
+        from cfa_tool import api
+
+        return getattr(api, name)
+    if name == "parse_model":
+        from cfa_tool.language.parser import parse_model
+
+        return parse_model
+    raise AttributeError(f"module 'cfa_tool' has no attribute '{name}'")

@@ -1,0 +1,3 @@
+from cfa_tool.cli import main
+
+raise SystemExit(main())

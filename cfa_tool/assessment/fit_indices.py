@@ -1,0 +1,151 @@
+"""Global fit indices for a maximum-likelihood fit.
+
+* chi-square = N F_min on df = p(p+1)/2 - q (Joreskog 1969);
+* baseline (independence) model: chi-square = N (sum log s_ii - log|S|) on p(p-1)/2 df;
+* CFI (Bentler 1990), TLI (Tucker & Lewis 1973);
+* RMSEA = sqrt(max(chi2 - df, 0) / (df N)) (Steiger 1990) with its 90% interval
+  from the noncentral chi-square and the test of close fit, H0: RMSEA <= .05
+  (Browne & Cudeck 1993).  Browne & Cudeck write n = N - 1 because their
+  statistic is (N - 1) F; ours is N F, so the noncentrality estimate is
+  (chi2 - df) / N;
+* SRMR: root mean square of (s_ij - sigma_ij) / sqrt(s_ii s_jj) over i <= j (Bentler 1995);
+* log-likelihood of the normal model, AIC (Akaike 1974), BIC (Schwarz 1978) and
+  sample-size-adjusted BIC (Sclove 1987).
+"""
+
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass
+
+import numpy as np
+from scipy import stats
+from scipy.optimize import brentq
+
+
+@dataclass(frozen=True)
+class FitIndices:
+    chi_square: float
+    df: int
+    p_value: float
+    cfi: float
+    tli: float
+    rmsea: float
+    rmsea_ci90: tuple[float, float]
+    rmsea_p_close: float
+    srmr: float
+    log_likelihood: float
+    aic: float
+    bic: float
+    sabic: float
+    baseline_chi_square: float
+    baseline_df: int
+    n_free_parameters: int
+
+    def to_dict(self) -> dict:
+        d = asdict(self)
+        d["rmsea_ci90"] = list(self.rmsea_ci90)
+        return d
+
+
+def chi_square_p(chi_square: float, df: int) -> float:
+    if df <= 0:
+        return float("nan")
+    return float(stats.chi2.sf(chi_square, df))
+
+
+def noncentrality_bound(chi_square: float, df: int, probability: float) -> float:
+    """lambda such that P(chi2_df(lambda) <= chi_square) = probability (0 if none)."""
+    f = lambda lam: stats.ncx2.cdf(chi_square, df, lam) - probability if lam > 0 else stats.chi2.cdf(chi_square, df) - probability
+    if f(0.0) < 0:
+        return 0.0
+    hi = max(1.0, chi_square)
+    while f(hi) > 0:
+        hi *= 2.0
+        if hi > 1e8:
+            return float("nan")
+    return float(brentq(f, 0.0, hi, xtol=1e-10))
+
+
+def rmsea_interval(chi_square: float, df: int, n_obs: int, level: float = 0.90) -> tuple[float, float]:
+    if df <= 0:
+        return (float("nan"), float("nan"))
+    tail = (1.0 - level) / 2.0
+    lam_low = noncentrality_bound(chi_square, df, 1.0 - tail)
+    lam_high = noncentrality_bound(chi_square, df, tail)
+    scale = df * n_obs
+    return (float(np.sqrt(lam_low / scale)), float(np.sqrt(lam_high / scale)))
+
+
+def rmsea_close_fit_p(chi_square: float, df: int, n_obs: int, close: float = 0.05) -> float:
+    if df <= 0:
+        return float("nan")
+    lam0 = close**2 * df * n_obs
+    return float(stats.ncx2.sf(chi_square, df, lam0))
+
+
+def rmsea_value(chi_square: float, df: int, n_obs: int) -> float:
+    if df <= 0:
+        return float("nan")
+    return float(np.sqrt(max(chi_square - df, 0.0) / (df * n_obs)))
+
+
+def cfi_value(chi_square: float, df: int, base_chi: float, base_df: int) -> float:
+    num = max(chi_square - df, 0.0)
+    den = max(chi_square - df, base_chi - base_df, 0.0)
+    return 1.0 if den == 0 else float(1.0 - num / den)
+
+
+def tli_value(chi_square: float, df: int, base_chi: float, base_df: int) -> float:
+    if df <= 0 or base_df <= 0:
+        return float("nan")
+    base_ratio = base_chi / base_df
+    if base_ratio == 1.0:
+        return float("nan")
+    return float((base_ratio - chi_square / df) / (base_ratio - 1.0))
+
+
+def srmr_value(S: np.ndarray, sigma: np.ndarray) -> float:
+    sd = np.sqrt(np.diag(S))
+    resid = (S - sigma) / np.outer(sd, sd)
+    lower = resid[np.tril_indices_from(resid)]
+    return float(np.sqrt(np.mean(lower**2)))
+
+
+def normal_log_likelihood(S: np.ndarray, sigma: np.ndarray, n_obs: int) -> float:
+    """Log-likelihood of the covariance structure (means saturated), divisor-N S."""
+    p = S.shape[0]
+    sign, logdet = np.linalg.slogdet(sigma)
+    trace = float(np.trace(np.linalg.solve(sigma, S)))
+    return float(-0.5 * n_obs * (p * np.log(2 * np.pi) + logdet + trace))
+
+
+def baseline_chi_square(S: np.ndarray, n_obs: int) -> tuple[float, int]:
+    p = S.shape[0]
+    _, logdet = np.linalg.slogdet(S)
+    return float(n_obs * (np.sum(np.log(np.diag(S))) - logdet)), p * (p - 1) // 2
+
+
+def fit_indices(S: np.ndarray, sigma: np.ndarray, discrepancy: float, n_obs: int, n_free: int) -> FitIndices:
+    p = S.shape[0]
+    df = p * (p + 1) // 2 - n_free
+    chi = float(n_obs * discrepancy)
+    base_chi, base_df = baseline_chi_square(S, n_obs)
+    loglik = normal_log_likelihood(S, sigma, n_obs)
+    return FitIndices(
+        chi_square=chi,
+        df=df,
+        p_value=chi_square_p(chi, df),
+        cfi=cfi_value(chi, df, base_chi, base_df),
+        tli=tli_value(chi, df, base_chi, base_df),
+        rmsea=rmsea_value(chi, df, n_obs),
+        rmsea_ci90=rmsea_interval(chi, df, n_obs),
+        rmsea_p_close=rmsea_close_fit_p(chi, df, n_obs),
+        srmr=srmr_value(S, sigma),
+        log_likelihood=loglik,
+        aic=-2 * loglik + 2 * n_free,
+        bic=-2 * loglik + n_free * np.log(n_obs),
+        sabic=-2 * loglik + n_free * np.log((n_obs + 2) / 24.0),
+        baseline_chi_square=base_chi,
+        baseline_df=base_df,
+        n_free_parameters=n_free,
+    )

@@ -1,0 +1,52 @@
+"""Identification checks: before fitting (counting rule, a scale for every
+factor) and after (rank of the information matrix; Bollen 1989, ch. 4, and
+the empirical check of McDonald & Krane 1979)."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from cfa_tool.errors import EstimationError, ModelError
+from cfa_tool.language.spec import Spec
+from cfa_tool.model.parameters import ParameterTable
+
+
+def check_counting_rule(spec: Spec, table: ParameterTable) -> None:
+    p = table.p
+    moments = p * (p + 1) // 2
+    if table.n_free > moments:
+        raise ModelError(
+            f"the model has {table.n_free} free parameters but {p} indicators give only {moments} variances and "
+            f"covariances, so it cannot be identified (degrees of freedom {moments - table.n_free}); add constraints or indicators",
+            None,
+        )
+    for j, factor in enumerate(table.latent):
+        scaled = any(
+            (par.matrix in ("L", "B") and par.col == j and (not par.free and par.offset != 0.0 or par.origin == "scale"))
+            or (par.matrix == "P" and par.row == j and par.col == j and not par.free)
+            for par in table.parameters
+        )
+        if not scaled:
+            loc = next(f.name.location for f in spec.factors if f.name.text == factor)
+            raise ModelError(
+                f"factor '{factor}' has no scale: fix one of its loadings or its variance (or use 'scale {factor} by ...')",
+                loc,
+                spec.source_line(loc),
+            )
+
+
+def check_information_rank(information: np.ndarray, labels: tuple[str, ...]) -> None:
+    """Raise if the information matrix is (numerically) singular, naming the parameters involved."""
+    if information.size == 0:
+        return
+    scale = np.sqrt(np.clip(np.diag(information), 1e-300, None))
+    normalised = information / np.outer(scale, scale)
+    vals, vecs = np.linalg.eigh(normalised)
+    if vals[0] > 1e-9 * max(vals[-1], 1.0):
+        return
+    weights = np.abs(vecs[:, 0])
+    involved = [labels[k] for k in np.argsort(-weights) if weights[k] > 0.1][:6]
+    raise EstimationError(
+        "the model is not identified with these data (the information matrix is singular); "
+        f"the parameters involved are: {', '.join(involved)}; fix one of them or add constraints"
+    )

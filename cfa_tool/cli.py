@@ -1,0 +1,166 @@
+"""Command line: argument parsing, output files and exit codes only.
+
+Exit codes: 0 success, 2 a problem with the user's input, 3 the model could
+not be estimated (no convergence, not identified), 1 an internal error.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+from pathlib import Path
+
+from cfa_tool.errors import CfaError, EstimationError, ModelError, OptionError
+
+PROG = "cfa-tool"
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message: str):  # one line, not the usage block
+        self.exit(2, f"{self.prog}: {message} (see '{self.prog} --help')\n")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(prog=PROG, description="Confirmatory factor analysis: fit a model file to a data set.")
+    parser.add_argument("--version", action="version", version=_version())
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+
+    fit = sub.add_parser("fit", help="fit a model to data and report the result")
+    fit.add_argument("model", metavar="MODEL", help="model file")
+    fit.add_argument("--data", required=True, metavar="FILE", help="data file (CSV, TSV or semicolon-separated)")
+    _add_output_options(fit)
+
+    check = sub.add_parser("check", help="parse a model and check it against the data without fitting")
+    check.add_argument("model", metavar="MODEL", help="model file")
+    check.add_argument("--data", required=True, metavar="FILE", help="data file")
+
+    demo = sub.add_parser("demo", help="fit the bundled rider-experience demo and print the report")
+    _add_output_options(demo)
+    return parser
+
+
+def _add_output_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--json", metavar="PATH", help="also write the result as JSON to PATH ('-' for standard output only)")
+    p.add_argument("--information", choices=("expected", "observed"), default="expected",
+                   help="information matrix for standard errors (default: expected)")
+    p.add_argument("--mi-threshold", type=float, default=3.84, metavar="X",
+                   help="show modification indices of at least X (default 3.84)")
+    p.add_argument("--mi-top", type=int, default=None, metavar="N", help="show at most N modification indices")
+
+
+def _version() -> str:
+    from cfa_tool import __version__
+
+    return f"{PROG} {__version__}"
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if args.command is None:
+        parser.print_help()
+        return 2
+    try:
+        return _run(args)
+    except CfaError as exc:
+        _report_error(exc)
+        return exc.exit_code
+    except KeyboardInterrupt:
+        print(f"{PROG}: interrupted", file=sys.stderr)
+        return 130
+    except Exception as exc:  # a bug in the tool, not the user's fault
+        if os.environ.get("CFA_TOOL_DEBUG"):
+            raise
+        print(f"{PROG}: internal error: {type(exc).__name__}: {exc} (please report this; set CFA_TOOL_DEBUG=1 for details)", file=sys.stderr)
+        return 1
+
+
+def _report_error(exc: CfaError) -> None:
+    if isinstance(exc, ModelError):
+        print(f"{PROG}: {exc.one_line()}", file=sys.stderr)
+        excerpt = exc.excerpt()
+        if excerpt:
+            print(excerpt, file=sys.stderr)
+    else:
+        print(f"{PROG}: {exc}", file=sys.stderr)
+
+
+def _run(args: argparse.Namespace) -> int:
+    if args.command == "check":
+        from cfa_tool.api import check
+
+        spec = check(args.model, args.data)
+        print(f"{args.model}: model is valid: {len(spec.factors)} factors, {len(spec.observed_names)} indicators, all found in {args.data}")
+        return 0
+    if args.command == "demo":
+        from cfa_tool.resources import resource_dir
+
+        model = resource_dir("models") / "rider_three_factors.cfa"
+        data = resource_dir("demo") / "rider_survey.csv"
+        return _fit_and_report(args, str(model), str(data))
+    return _fit_and_report(args, args.model, args.data)
+
+
+def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
+    from cfa_tool.api import fit
+
+    inputs = [Path(model), Path(data)]
+    if args.json and args.json != "-":
+        _refuse_overwriting_input(Path(args.json), inputs)
+    result = fit(model, data, information=args.information, mi_threshold=args.mi_threshold, mi_top=args.mi_top)
+    if not result.converged:
+        raise EstimationError(
+            f"the estimation did not converge ({result.message}); try start values closer to the expected solution "
+            f"('start ...' statements), check the data for extreme values, or simplify the model"
+        )
+    if args.json == "-":
+        from cfa_tool.reporting.json_report import to_json
+
+        sys.stdout.write(to_json(result))
+        return 0
+    _print_report(result)
+    if args.json:
+        from cfa_tool.reporting.json_report import to_json
+
+        write_atomically(Path(args.json), to_json(result))
+        print(f"JSON result written to {args.json}")
+    return 0
+
+
+def _print_report(result) -> None:
+    from rich.console import Console
+
+    from cfa_tool.reporting.terminal import render
+
+    console = Console(highlight=False, markup=False, emoji=False)
+    console.width = max(console.width, 120)  # tables stay readable when piped or in a narrow window
+    render(result, console)
+
+
+def _refuse_overwriting_input(target: Path, inputs: list[Path]) -> None:
+    for source in inputs:
+        if source.exists() and target.exists() and target.resolve() == source.resolve():
+            raise OptionError(f"refusing to write output to '{target}': it is one of the input files")
+
+
+def write_atomically(target: Path, text: str) -> None:
+    """Write to a temporary file beside the target, then rename it into place."""
+    import tempfile
+
+    directory = target.parent if str(target.parent) else Path(".")
+    if not directory.is_dir():
+        raise OptionError(f"cannot write '{target}': the folder '{directory}' does not exist")
+    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=directory)
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as handle:
+            handle.write(text)
+        os.replace(tmp, target)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

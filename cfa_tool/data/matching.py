@@ -1,0 +1,32 @@
+"""Check a model's variable names against the columns of a data set."""
+
+from __future__ import annotations
+
+import difflib
+
+from cfa_tool.errors import ModelError
+from cfa_tool.language.spec import Spec
+
+
+def check_columns(spec: Spec, columns: list[str], data_source: str) -> None:
+    """Every observed indicator must be a column; no factor may share a column's name."""
+    available = set(columns)
+    data_name = data_source.replace("\\", "/").rsplit("/", 1)[-1]
+    for factor in spec.factors:
+        if factor.name.text in available:
+            loc = factor.name.location
+            raise ModelError(
+                f"'{factor.name}' is declared as a factor but is also a column of {data_name}; give the factor another name",
+                loc,
+                spec.source_line(loc),
+            )
+    for name in spec.observed_names:
+        if name not in available:
+            loc = spec.first_mention(name)
+            guess = difflib.get_close_matches(name, columns, n=1, cutoff=0.6)
+            hint = f"; did you mean '{guess[0]}'?" if guess else ""
+            raise ModelError(
+                f"unknown variable '{name}' (not a column of {data_name}{hint})",
+                loc,
+                spec.source_line(loc),
+            )

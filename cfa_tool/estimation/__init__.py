@@ -1,0 +1,1 @@
+"""Discrepancy functions and the optimiser."""

@@ -1,0 +1,1 @@
+"""Standard errors and test statistics for estimated parameters."""

@@ -1,0 +1,237 @@
+"""Checks of meaning on a parsed :class:`Spec` (no data needed).
+
+Each check raises :class:`ModelError` pointing at the statement or name at
+fault: duplicate factors, circular higher-order factors, references to
+parameters the model does not have, contradictory constraints, and factors
+with too few indicators to be identified.
+"""
+
+from __future__ import annotations
+
+import difflib
+
+from cfa_tool.errors import Location, ModelError
+from cfa_tool.language.spec import ParameterRef, Spec
+
+
+def _fail(spec: Spec, message: str, location: Location | None) -> ModelError:
+    return ModelError(message, location, spec.source_line(location))
+
+
+def exogenous_factors(spec: Spec) -> tuple[str, ...]:
+    """Factors that are not indicators of another factor."""
+    below = {ind.text for f in spec.factors for ind in f.indicators}
+    return tuple(n for n in spec.factor_names if n not in below)
+
+
+def existing_parameters(spec: Spec) -> set[tuple]:
+    """Keys (as :meth:`ParameterRef.key`) of every parameter the model has before constraints."""
+    keys: set[tuple] = set()
+    for factor in spec.factors:
+        for ind in factor.indicators:
+            keys.add(("loading", (factor.name.text, ind.text)))
+    for name in spec.factor_names + spec.observed_names:
+        keys.add(("variance", (name,)))
+    zero = {p.key() for p in spec.uncorrelated}
+    exo = exogenous_factors(spec)
+    for i, a in enumerate(exo):
+        for b in exo[i + 1 :]:
+            pair = tuple(sorted((a, b)))
+            if pair not in zero:
+                keys.add(("covariance", pair))
+    for pair in spec.covary:
+        keys.add(("covariance", pair.key()))
+    return keys
+
+
+def check_spec(spec: Spec) -> None:
+    _check_factors(spec)
+    _check_pairs(spec)
+    _check_references(spec)
+    _check_contradictions(spec)
+    _check_indicator_counts(spec)
+
+
+def _check_factors(spec: Spec) -> None:
+    seen: dict[str, Location] = {}
+    for factor in spec.factors:
+        name = factor.name
+        if name.text in seen:
+            first = seen[name.text]
+            raise _fail(spec, f"factor '{name}' is declared twice (first on line {first.line}); list all its indicators in one statement", name.location)
+        seen[name.text] = name.location
+        inds: set[str] = set()
+        for ind in factor.indicators:
+            if ind.text in inds:
+                raise _fail(spec, f"'{ind}' is listed twice as an indicator of '{name}'", ind.location)
+            if ind.text == name.text:
+                raise _fail(spec, f"factor '{name}' cannot be an indicator of itself", ind.location)
+            inds.add(ind.text)
+    # circular higher-order structures: follow "factor -> its latent indicators"
+    children = {f.name.text: [i.text for i in f.indicators if i.text in seen] for f in spec.factors}
+    state: dict[str, int] = {}
+
+    def visit(node: str, path: list[str]) -> None:
+        state[node] = 1
+        for child in children[node]:
+            if state.get(child) == 1:
+                cycle = path[path.index(child) :] + [child] if child in path else [node, child]
+                raise _fail(spec, "factors cannot indicate each other in a circle: " + " -> ".join(cycle), seen[node])
+            if state.get(child) is None:
+                visit(child, path + [child])
+        state[node] = 2
+
+    for name in seen:
+        if name not in state:
+            visit(name, [name])
+
+
+def _known_names(spec: Spec) -> list[str]:
+    return list(spec.factor_names) + list(spec.observed_names)
+
+
+def _unknown_name(spec: Spec, name: str, location: Location | None) -> ModelError:
+    guess = difflib.get_close_matches(name, _known_names(spec), n=1)
+    hint = f"; did you mean '{guess[0]}'?" if guess else ""
+    return _fail(spec, f"'{name}' is not a factor or an indicator in this model{hint}", location)
+
+
+def _check_pairs(spec: Spec) -> None:
+    known = set(_known_names(spec))
+    latent = set(spec.factor_names)
+    for word, pairs in (("covary", spec.covary), ("uncorrelated", spec.uncorrelated)):
+        for pair in pairs:
+            for n in (pair.first, pair.second):
+                if n.text not in known:
+                    raise _unknown_name(spec, n.text, n.location)
+            if pair.first.text == pair.second.text:
+                raise _fail(spec, f"'{word}' names '{pair.first}' twice; a variable's variance is addressed as variance({pair.first})", pair.second.location)
+            if (pair.first.text in latent) != (pair.second.text in latent):
+                raise _fail(
+                    spec,
+                    f"'{pair.first}' and '{pair.second}' are a factor and an indicator; only two factors or two indicators' residuals can covary",
+                    pair.second.location,
+                )
+    exo = set(exogenous_factors(spec))
+    for pair in spec.uncorrelated:
+        a, b = pair.first.text, pair.second.text
+        if a in latent and not (a in exo and b in exo):
+            raise _fail(spec, f"'{a}' and '{b}' are already uncorrelated unless you covary them (a factor below a higher-order factor has no free covariances)", pair.first.location)
+        if a not in latent:
+            raise _fail(spec, f"residuals of '{a}' and '{b}' are uncorrelated unless you covary them; no statement is needed", pair.first.location)
+    covaried = {p.key(): p for p in spec.covary}
+    for pair in spec.uncorrelated:
+        if pair.key() in covaried:
+            raise _fail(spec, f"'{pair.first}' and '{pair.second}' are declared both to covary and to be uncorrelated", pair.first.location)
+
+
+def _all_refs(spec: Spec) -> list[ParameterRef]:
+    refs: list[ParameterRef] = []
+    for setting in spec.fixed + spec.starts:
+        refs.extend(setting.refs)
+    refs.extend(spec.freed)
+    for group in spec.equal:
+        refs.extend(group)
+    for bound in spec.bounds:
+        refs.extend(bound.refs)
+    return refs
+
+
+def _check_references(spec: Spec) -> None:
+    existing = existing_parameters(spec)
+    known = set(_known_names(spec))
+    latent = set(spec.factor_names)
+    zero = {p.key() for p in spec.uncorrelated}
+    for ref in _all_refs(spec):
+        for name in ref.names:
+            if name not in known:
+                raise _unknown_name(spec, name, ref.location)
+        if ref.key() in existing:
+            continue
+        if ref.kind == "loading":
+            f, x = ref.names
+            if f not in latent:
+                raise _fail(spec, f"in {ref}, '{f}' is not a factor; the factor comes first, as in loading(factor, item)", ref.location)
+            raise _fail(spec, f"{ref} is not in the model: '{x}' is not an indicator of '{f}' (add it to 'factor {f}: ...' to allow a cross-loading)", ref.location)
+        if ref.kind == "covariance":
+            a, b = ref.names
+            if a == b:
+                raise _fail(spec, f"{ref} names one variable twice; write variance({a})", ref.location)
+            if ref.key()[1] in zero:
+                raise _fail(spec, f"{ref} is fixed at zero by 'uncorrelated'; remove that statement to set it", ref.location)
+            raise _fail(spec, f"{ref} is not in the model; declare it with 'covary {a}, {b}' first", ref.location)
+        raise _fail(spec, f"{ref} is not a parameter of this model", ref.location)  # pragma: no cover
+
+
+def _check_contradictions(spec: Spec) -> None:
+    fixed: dict[tuple, tuple[float, ParameterRef]] = {}
+    for setting in spec.fixed:
+        for ref in setting.refs:
+            key = ref.key()
+            if key in fixed and fixed[key][0] != setting.value:
+                raise _fail(spec, f"{ref} is fixed to {setting.value:g} here but to {fixed[key][0]:g} on line {fixed[key][1].location.line}", ref.location)
+            fixed[key] = (setting.value, ref)
+    for ref in spec.freed:
+        if ref.key() in fixed:
+            raise _fail(spec, f"{ref} is both fixed (line {fixed[ref.key()][1].location.line}) and freed", ref.location)
+    for setting in spec.starts:
+        for ref in setting.refs:
+            if ref.key() in fixed:
+                raise _fail(spec, f"{ref} is fixed, so a start value for it has no effect; remove one of the two", ref.location)
+    for bound in spec.bounds:
+        for ref in bound.refs:
+            if ref.key() in fixed:
+                raise _fail(spec, f"{ref} is fixed, so a bound on it has no effect; remove one of the two", ref.location)
+    lower: dict[tuple, float] = {}
+    upper: dict[tuple, float] = {}
+    for bound in spec.bounds:
+        for ref in bound.refs:
+            key = ref.key()
+            if bound.lower is not None:
+                lower[key] = bound.lower
+            if bound.upper is not None:
+                upper[key] = bound.upper
+            if key in lower and key in upper and lower[key] > upper[key]:
+                raise _fail(spec, f"the bounds on {ref} leave no room: at least {lower[key]:g} and at most {upper[key]:g}", ref.location)
+    for group in spec.equal:
+        values = {fixed[r.key()][0] for r in group if r.key() in fixed}
+        if len(values) > 1:
+            raise _fail(spec, f"these parameters are set equal but are fixed to different values ({', '.join(f'{v:g}' for v in sorted(values))})", group[0].location)
+        kinds = {r.kind for r in group}
+        keys = [r.key() for r in group]
+        if len(set(keys)) < len(keys):
+            raise _fail(spec, "'equal' names the same parameter twice", group[0].location)
+        if len(kinds) > 1:
+            raise _fail(spec, "'equal' can only join parameters of one kind (all loadings, all variances or all covariances)", group[0].location)
+
+
+def _check_indicator_counts(spec: Spec) -> None:
+    fixed_keys = {r.key() for s in spec.fixed for r in s.refs}
+    constrained = fixed_keys | {r.key() for g in spec.equal for r in g}
+    exo = exogenous_factors(spec)
+    zero = {p.key() for p in spec.uncorrelated}
+    covaried = {p.key() for p in spec.covary}
+    for factor in spec.factors:
+        name = factor.name.text
+        inds = [i.text for i in factor.indicators]
+        if len(inds) == 1:
+            x = inds[0]
+            if ("variance", (x,)) not in fixed_keys:
+                raise _fail(
+                    spec,
+                    f"factor '{name}' has a single indicator '{x}' and cannot be identified; add indicators or fix its residual, e.g. 'fix variance({x}) = 0'",
+                    factor.name.location,
+                )
+        elif len(inds) == 2:
+            loads_constrained = sum(("loading", (name, x)) in constrained for x in inds) >= 2
+            if name in exo:
+                partners = [o for o in exo if o != name and tuple(sorted((name, o))) not in zero]
+            else:
+                partners = [p for p in covaried if name in p] or ["(higher-order factor)"]
+            if not partners and not loads_constrained:
+                raise _fail(
+                    spec,
+                    f"factor '{name}' has two indicators and no correlation with another factor, so it cannot be identified; "
+                    f"add an indicator, let it correlate with another factor, or set its loadings equal",
+                    factor.name.location,
+                )

@@ -1,0 +1,307 @@
+"""Model text -> :class:`Spec`.
+
+The grammar (``grammar/model.lark``) fixes the shape of each statement; this
+module turns Lark's tree into the frozen specification, expands ranges such as
+``item1..item9`` and translates every syntax error into one plain sentence with
+file, line and column.  Checks of meaning (unknown names, contradictions,
+identification) live in :mod:`cfa_tool.language.checks`.
+"""
+
+from __future__ import annotations
+
+import difflib
+import re
+from functools import lru_cache
+from pathlib import Path
+
+from lark import Lark, Token, Tree
+from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
+
+from cfa_tool.errors import Location, ModelError
+from cfa_tool.language.spec import (
+    REFERENCE_KINDS,
+    SCALING_METHODS,
+    BoundSetting,
+    Factor,
+    Name,
+    NamePair,
+    ParameterRef,
+    ScaleSetting,
+    Spec,
+    ValueSetting,
+)
+from cfa_tool.resources import resource_dir
+
+STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale")
+
+# Plain words for the grammar's terminals, used in "expected ..." messages.
+_TERMINAL_WORDS = {
+    "NAME": "a name",
+    "STRING": 'quoted text ("...")',
+    "SIGNED_NUMBER": "a number",
+    "_NL": "the end of the line",
+    "COMPARISON": "'>=' or '<='",
+    "$END": "the end of the file",
+}
+
+MAX_MODEL_BYTES = 1_000_000
+
+
+@lru_cache(maxsize=1)
+def _parser() -> Lark:
+    grammar = (resource_dir("grammar") / "model.lark").read_text(encoding="utf-8")
+    return Lark(grammar, parser="lalr", propagate_positions=True, maybe_placeholders=False)
+
+
+def read_model_file(path: str | Path) -> Spec:
+    """Read and parse a model file, with errors that name the file."""
+    path = Path(path)
+    if not path.exists():
+        raise ModelError(f"model file '{path}' does not exist")
+    if path.is_dir():
+        raise ModelError(f"'{path}' is a folder, not a model file")
+    size = path.stat().st_size
+    if size > MAX_MODEL_BYTES:
+        raise ModelError(f"model file '{path}' is {size:,} bytes; a model file is at most {MAX_MODEL_BYTES:,} bytes")
+    raw = path.read_bytes()
+    return parse_model(decode_model_bytes(raw, str(path)), source=str(path))
+
+
+def decode_model_bytes(raw: bytes, source: str) -> str:
+    try:
+        return raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        before = raw[: exc.start]
+        line = before.count(b"\n") + 1
+        column = exc.start - (before.rfind(b"\n") + 1) + 1
+        raise ModelError(
+            f"the file is not UTF-8 text (byte 0x{raw[exc.start]:02x} cannot be read); save it as UTF-8",
+            Location(source, line, column),
+        ) from None
+
+
+def parse_model(text: str, source: str = "<model>") -> Spec:
+    """Parse model text into a checked :class:`Spec`."""
+    from cfa_tool.language.checks import check_spec
+
+    if "\x00" in text:
+        raise ModelError("the model text contains a NUL character; is this a binary file?", Location(source, 1, 1))
+    lines = tuple(text.splitlines())
+    if not text.endswith("\n"):
+        text += "\n"
+    try:
+        tree = _parser().parse(text)
+    except UnexpectedInput as exc:
+        raise _syntax_error(exc, source, lines) from None
+    spec = _Builder(source, text, lines).build(tree)
+    check_spec(spec)
+    return spec
+
+
+# ---------------------------------------------------------------- syntax errors
+
+
+def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> ModelError:
+    line = max(1, getattr(exc, "line", 1) or 1)
+    column = max(1, getattr(exc, "column", 1) or 1)
+    if isinstance(exc, UnexpectedEOF) or (isinstance(exc, UnexpectedToken) and exc.token.type == "$END"):
+        line = max(1, len(lines))
+        column = len(lines[-1]) + 1 if lines else 1
+        message = "the model text ends in the middle of a statement"
+    elif isinstance(exc, UnexpectedCharacters):
+        char = exc.char if exc.char not in "\r\n" else "line break"
+        message = f"unexpected character '{char}'"
+        if char == "'":
+            message += ' (use double quotes for quoted names and titles)'
+    elif isinstance(exc, UnexpectedToken):
+        message = _unexpected_token_message(exc)
+    else:  # pragma: no cover - Lark has no other public kinds
+        message = "the model text cannot be read here"
+    source_line = lines[line - 1] if 1 <= line <= len(lines) else None
+    return ModelError(message, Location(source, line, column), source_line)
+
+
+def _unexpected_token_message(exc: UnexpectedToken) -> str:
+    token = exc.token
+    shown = "the end of the line" if token.type == "_NL" else f"'{token}'"
+    expected = sorted(exc.accepts or exc.expected)
+    statement_start = {w.upper() for w in STATEMENT_WORDS} & set(expected)
+    if statement_start and len(statement_start) >= len(STATEMENT_WORDS) - 1:
+        word = str(token)
+        guess = difflib.get_close_matches(word, STATEMENT_WORDS, n=1)
+        hint = f"; did you mean '{guess[0]}'?" if guess else f"; a statement starts with one of: {', '.join(STATEMENT_WORDS)}"
+        return f"unknown statement {shown}{hint}"
+    words = []
+    for name in expected:
+        word = _TERMINAL_WORDS.get(name)
+        if word is None:
+            try:
+                pattern = _parser().get_terminal(name).pattern
+                word = f"'{pattern.value}'" if pattern.type == "str" else name.lower()
+            except KeyError:
+                word = name.lower()
+        if word not in words:
+            words.append(word)
+    return f"unexpected {shown}; expected {_or_list(words)}"
+
+
+def _or_list(words: list[str]) -> str:
+    if len(words) <= 1:
+        return "".join(words)
+    return ", ".join(words[:-1]) + " or " + words[-1]
+
+
+# ---------------------------------------------------------------- tree -> Spec
+
+
+class _Builder:
+    def __init__(self, source: str, text: str, lines: tuple[str, ...]):
+        self.source = source
+        self.text = text
+        self.lines = lines
+
+    def loc(self, item: Token | Tree) -> Location:
+        if isinstance(item, Token):
+            return Location(self.source, item.line or 1, item.column or 1)
+        return Location(self.source, item.meta.line, item.meta.column)
+
+    def error(self, message: str, item: Token | Tree | Location) -> ModelError:
+        location = item if isinstance(item, Location) else self.loc(item)
+        source_line = self.lines[location.line - 1] if 1 <= location.line <= len(self.lines) else None
+        return ModelError(message, location, source_line)
+
+    def build(self, tree: Tree) -> Spec:
+        title = None
+        factors: list[Factor] = []
+        covary: list[NamePair] = []
+        uncorrelated: list[NamePair] = []
+        fixed: list[ValueSetting] = []
+        freed: list[ParameterRef] = []
+        equal: list[tuple[ParameterRef, ...]] = []
+        starts: list[ValueSetting] = []
+        bounds: list[BoundSetting] = []
+        scaling: list[ScaleSetting] = []
+        for stmt in tree.children:
+            kind = stmt.data
+            if kind == "title_stmt":
+                if title is not None:
+                    raise self.error("the model already has a name; give it once", stmt)
+                title = str(stmt.children[0])[1:-1]
+            elif kind == "factor_stmt":
+                name = self.name(stmt.children[0])
+                factors.append(Factor(name, self.name_list(stmt.children[1])))
+            elif kind in ("covary_stmt", "uncorrelated_stmt"):
+                names = self.name_list(stmt.children[0])
+                if len(names) < 2:
+                    word = kind.split("_")[0]
+                    raise self.error(f"'{word}' needs at least two names", stmt)
+                pairs = [NamePair(a, b) for i, a in enumerate(names) for b in names[i + 1 :]]
+                (covary if kind == "covary_stmt" else uncorrelated).extend(pairs)
+            elif kind == "fix_stmt":
+                fixed.append(ValueSetting(self.refs(stmt.children[0]), self.number(stmt.children[1])))
+            elif kind == "free_stmt":
+                freed.extend(self.refs(stmt.children[0]))
+            elif kind == "equal_stmt":
+                refs = self.refs(stmt.children[0])
+                if len(refs) < 2:
+                    raise self.error("'equal' needs at least two parameters", stmt)
+                equal.append(refs)
+            elif kind == "start_stmt":
+                starts.append(ValueSetting(self.refs(stmt.children[0]), self.number(stmt.children[1])))
+            elif kind == "bound_stmt":
+                refs = self.refs(stmt.children[0])
+                value = self.number(stmt.children[2])
+                lower, upper = (value, None) if str(stmt.children[1]) == ">=" else (None, value)
+                bounds.append(BoundSetting(refs, lower, upper))
+            elif kind == "scale_stmt":
+                scaling.append(self.scale(stmt))
+            else:  # pragma: no cover - grammar and builder out of step
+                raise self.error(f"statement '{kind}' is not handled", stmt)
+        if not factors:
+            raise ModelError(
+                "the model declares no factors; write at least one line such as 'factor trait: item1, item2, item3'",
+                Location(self.source, max(1, len(self.lines)), 1),
+            )
+        return Spec(
+            source=self.source,
+            text=self.text,
+            title=title,
+            factors=tuple(factors),
+            covary=tuple(covary),
+            uncorrelated=tuple(uncorrelated),
+            fixed=tuple(fixed),
+            freed=tuple(freed),
+            equal=tuple(equal),
+            starts=tuple(starts),
+            bounds=tuple(bounds),
+            scaling=tuple(scaling),
+            lines=self.lines,
+        )
+
+    def name(self, node: Tree) -> Name:
+        token = node.children[0]
+        text = str(token)
+        if node.data == "quoted_name":
+            text = text[1:-1]
+            if not text.strip():
+                raise self.error("a quoted name cannot be empty", token)
+        return Name(text, self.loc(token))
+
+    def name_list(self, node: Tree) -> tuple[Name, ...]:
+        names: list[Name] = []
+        for child in node.children:
+            if child.data == "name_range":
+                names.extend(self.expand_range(child))
+            else:
+                names.append(self.name(child))
+        return tuple(names)
+
+    def expand_range(self, node: Tree) -> list[Name]:
+        first, last = node.children
+        pattern = re.compile(r"^(.*?)(\d+)$")
+        m1, m2 = pattern.match(str(first)), pattern.match(str(last))
+        if not m1 or not m2:
+            raise self.error(f"a range such as 'item1..item9' needs names ending in numbers; got '{first}..{last}'", first)
+        if m1.group(1) != m2.group(1):
+            raise self.error(f"the two ends of the range '{first}..{last}' must share the prefix before the number", first)
+        lo, hi = int(m1.group(2)), int(m2.group(2))
+        if lo > hi:
+            raise self.error(f"the range '{first}..{last}' counts down; write the smaller number first", first)
+        if hi - lo >= 10_000:
+            raise self.error(f"the range '{first}..{last}' names more than 10,000 variables", first)
+        width = len(m1.group(2)) if m1.group(2).startswith("0") else 0
+        location = self.loc(first)
+        return [Name(f"{m1.group(1)}{str(i).zfill(width)}", location) for i in range(lo, hi + 1)]
+
+    def refs(self, node: Tree) -> tuple[ParameterRef, ...]:
+        refs = []
+        for ref in node.children:
+            kind_token, *name_nodes = ref.children
+            kind = str(kind_token)
+            if kind not in REFERENCE_KINDS:
+                guess = difflib.get_close_matches(kind, REFERENCE_KINDS, n=1)
+                hint = f"did you mean '{guess[0]}'?" if guess else "use " + _or_list([f"{k}(...)" for k in REFERENCE_KINDS])
+                raise self.error(f"unknown kind of parameter '{kind}'; {hint}", kind_token)
+            names = tuple(self.name(n).text for n in name_nodes)
+            wanted = REFERENCE_KINDS[kind]
+            if len(names) != wanted:
+                example = {"loading": "loading(factor, item)", "variance": "variance(name)", "covariance": "covariance(a, b)"}[kind]
+                raise self.error(f"'{kind}' takes {wanted} name{'s' if wanted > 1 else ''}, as in {example}", kind_token)
+            refs.append(ParameterRef(kind, names, self.loc(kind_token)))
+        return tuple(refs)
+
+    def number(self, token: Token) -> float:
+        value = float(token.children[0] if isinstance(token, Tree) else token)
+        if value != value or value in (float("inf"), float("-inf")):
+            raise self.error("the number must be finite", token)
+        return value
+
+    def scale(self, stmt: Tree) -> ScaleSetting:
+        target, method_node = stmt.children
+        method = self.name(method_node)
+        if method.text not in SCALING_METHODS:
+            guess = difflib.get_close_matches(method.text, SCALING_METHODS, n=1)
+            hint = f"did you mean '{guess[0]}'?" if guess else f"use one of: {', '.join(SCALING_METHODS)}"
+            raise self.error(f"unknown way to scale a factor '{method.text}'; {hint}", method.location)
+        factors = () if target.data == "all_factors" else self.name_list(target.children[0])
+        return ScaleSetting(factors, method.text, self.loc(stmt))

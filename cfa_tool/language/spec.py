@@ -1,0 +1,141 @@
+"""The parsed model: frozen dataclasses that say what the model file said.
+
+A :class:`Spec` knows nothing about data.  Every name and statement keeps the
+place it was written so that later checks (against data, identification) can
+point at it.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from cfa_tool.errors import Location
+
+#: Parameter kinds a reference may name, with the number of names each takes.
+REFERENCE_KINDS: dict[str, int] = {"loading": 2, "variance": 1, "covariance": 2}
+
+#: Ways to give a factor its scale.
+SCALING_METHODS = ("marker", "variance", "effects")
+
+
+@dataclass(frozen=True)
+class Name:
+    text: str
+    location: Location
+
+    def __str__(self) -> str:
+        return self.text
+
+
+@dataclass(frozen=True)
+class ParameterRef:
+    """``kind(name, ...)``, e.g. ``loading(comfort, clean)``."""
+
+    kind: str
+    names: tuple[str, ...]
+    location: Location
+
+    def key(self) -> tuple:
+        """Identity of the parameter, order-free for covariances."""
+        if self.kind == "covariance":
+            return (self.kind, tuple(sorted(self.names)))
+        return (self.kind, self.names)
+
+    def __str__(self) -> str:
+        return f"{self.kind}({', '.join(self.names)})"
+
+
+@dataclass(frozen=True)
+class Factor:
+    name: Name
+    indicators: tuple[Name, ...]
+
+
+@dataclass(frozen=True)
+class NamePair:
+    """Two variables named together by ``covary`` or ``uncorrelated``."""
+
+    first: Name
+    second: Name
+
+    def key(self) -> tuple[str, str]:
+        return tuple(sorted((self.first.text, self.second.text)))  # type: ignore[return-value]
+
+
+@dataclass(frozen=True)
+class ValueSetting:
+    """``fix``/``start`` statements: parameters set to a number."""
+
+    refs: tuple[ParameterRef, ...]
+    value: float
+
+
+@dataclass(frozen=True)
+class BoundSetting:
+    refs: tuple[ParameterRef, ...]
+    lower: float | None
+    upper: float | None
+
+
+@dataclass(frozen=True)
+class ScaleSetting:
+    """``scale latent by METHOD`` (factors empty) or ``scale f, g by METHOD``."""
+
+    factors: tuple[Name, ...]
+    method: str
+    location: Location
+
+
+@dataclass(frozen=True)
+class Spec:
+    """Everything a model file says, in the order it said it."""
+
+    source: str
+    text: str
+    title: str | None
+    factors: tuple[Factor, ...]
+    covary: tuple[NamePair, ...] = ()
+    uncorrelated: tuple[NamePair, ...] = ()
+    fixed: tuple[ValueSetting, ...] = ()
+    freed: tuple[ParameterRef, ...] = ()
+    equal: tuple[tuple[ParameterRef, ...], ...] = ()
+    starts: tuple[ValueSetting, ...] = ()
+    bounds: tuple[BoundSetting, ...] = ()
+    scaling: tuple[ScaleSetting, ...] = ()
+    lines: tuple[str, ...] = field(default=(), repr=False, compare=False)
+
+    @property
+    def factor_names(self) -> tuple[str, ...]:
+        return tuple(f.name.text for f in self.factors)
+
+    @property
+    def observed_names(self) -> tuple[str, ...]:
+        """Indicators that are not factors, in order of first appearance."""
+        latent = set(self.factor_names)
+        seen: dict[str, None] = {}
+        for factor in self.factors:
+            for ind in factor.indicators:
+                if ind.text not in latent:
+                    seen.setdefault(ind.text, None)
+        return tuple(seen)
+
+    def first_mention(self, name: str) -> Location | None:
+        """Where ``name`` first appears as an indicator (for error messages)."""
+        for factor in self.factors:
+            for ind in factor.indicators:
+                if ind.text == name:
+                    return ind.location
+        return None
+
+    def source_line(self, location: Location | None) -> str | None:
+        if location is None or not (1 <= location.line <= len(self.lines)):
+            return None
+        return self.lines[location.line - 1]
+
+    def scaling_of(self, factor: str) -> str:
+        """The scaling method that applies to ``factor`` (last statement wins)."""
+        method = "marker"
+        for setting in self.scaling:
+            if not setting.factors or any(f.text == factor for f in setting.factors):
+                method = setting.method
+        return method

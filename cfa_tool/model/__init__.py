@@ -1,0 +1,1 @@
+"""Parameter table, model matrices, implied moments and starting values."""

@@ -1,0 +1,1 @@
+"""Reporters: turn a result into text or files; they never compute statistics."""

@@ -1,0 +1,13 @@
+"""JSON output: the result's dictionary, with stable key order."""
+
+from __future__ import annotations
+
+import json
+
+from cfa_tool import __version__
+
+
+def to_json(result) -> str:
+    payload = {"tool": "cfa-tool", "version": __version__}
+    payload.update(result.to_dict())
+    return json.dumps(payload, indent=2, allow_nan=False) + "\n"

@@ -1,0 +1,33 @@
+"""Number formatting shared by the reporters."""
+
+from __future__ import annotations
+
+import math
+
+
+def missing(value) -> bool:
+    return value is None or (isinstance(value, float) and not math.isfinite(value))
+
+
+def num(value, digits: int = 3) -> str:
+    if missing(value):
+        return ""
+    return f"{value:.{digits}f}"
+
+
+def unit(value, digits: int = 3) -> str:
+    """A value bounded by 1 in size without its leading zero (.931), as journals print indices."""
+    if missing(value):
+        return ""
+    text = f"{value:.{digits}f}"
+    if text.startswith("0."):
+        return text[1:]
+    if text.startswith("-0."):
+        return "-" + text[2:]
+    return text
+
+
+def p_value(value) -> str:
+    if missing(value):
+        return ""
+    return "< .001" if value < 0.001 else unit(value, 3)

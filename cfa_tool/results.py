@@ -1,0 +1,149 @@
+"""Result objects of a fit: frozen, serialisable, free of formatting."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from cfa_tool.assessment.fit_indices import FitIndices
+from cfa_tool.assessment.modification import ModificationIndex
+
+DEFAULT_MI_THRESHOLD = 3.84  # chi-square(1) critical value at alpha = .05
+
+
+def clean(value):
+    """JSON-safe: NaN and infinities become None, numpy scalars become Python numbers."""
+    if isinstance(value, (float, np.floating)):
+        value = float(value)
+        return value if math.isfinite(value) else None
+    if isinstance(value, np.integer):
+        return int(value)
+    if isinstance(value, (list, tuple)):
+        return [clean(v) for v in value]
+    if isinstance(value, dict):
+        return {k: clean(v) for k, v in value.items()}
+    return value
+
+
+@dataclass(frozen=True)
+class EstimateRow:
+    kind: str
+    variables: tuple[str, ...]
+    free: bool
+    estimate: float
+    se: float
+    z: float
+    p_value: float
+    ci95: tuple[float, float]
+    standardized: float
+    standardized_latent: float
+    origin: str
+    group: str | None = None
+
+    def to_dict(self) -> dict:
+        return clean(
+            {
+                "kind": self.kind,
+                "variables": list(self.variables),
+                "group": self.group,
+                "free": self.free,
+                "estimate": self.estimate,
+                "se": self.se,
+                "z": self.z,
+                "p_value": self.p_value,
+                "ci95": list(self.ci95),
+                "standardized": self.standardized,
+                "standardized_latent": self.standardized_latent,
+            }
+        )
+
+
+@dataclass(frozen=True)
+class DataSummary:
+    source: str
+    rows_read: int
+    rows_dropped: int
+    n_obs: int
+    variables: tuple[str, ...]
+    means: tuple[float, ...]
+    sds: tuple[float, ...]
+
+    def to_dict(self) -> dict:
+        return clean(
+            {
+                "source": self.source,
+                "rows_read": self.rows_read,
+                "rows_dropped": self.rows_dropped,
+                "n_obs": self.n_obs,
+                "variables": list(self.variables),
+                "means": list(self.means),
+                "sds": list(self.sds),
+            }
+        )
+
+
+@dataclass(frozen=True, eq=False)
+class FitResult:
+    model_name: str
+    model_source: str
+    model_text: str
+    estimator: str
+    converged: bool
+    iterations: int
+    message: str
+    n_obs: int
+    data: DataSummary
+    observed: tuple[str, ...]
+    latent: tuple[str, ...]
+    fit: FitIndices | None
+    estimates: tuple[EstimateRow, ...]
+    modification_indices: tuple[ModificationIndex, ...]
+    r_squared: dict[str, float]
+    sample_covariance: np.ndarray = field(repr=False)
+    implied_covariance: np.ndarray = field(repr=False)
+    residual_correlations: np.ndarray = field(repr=False)
+    warnings: tuple[str, ...] = ()
+    mi_threshold: float = DEFAULT_MI_THRESHOLD
+    mi_top: int | None = None
+
+    # -- views
+    def reported_modification_indices(self) -> list[ModificationIndex]:
+        rows = [m for m in self.modification_indices if m.index >= self.mi_threshold]
+        return rows[: self.mi_top] if self.mi_top is not None else rows
+
+    def largest_residual_correlation(self) -> tuple[str, str, float] | None:
+        r = self.residual_correlations
+        if r.shape[0] < 2:
+            return None
+        lower = np.tril(np.abs(r), k=-1)
+        i, j = np.unravel_index(np.argmax(lower), lower.shape)
+        return self.observed[j], self.observed[i], float(r[i, j])
+
+    def estimates_frame(self):
+        import pandas as pd
+
+        return pd.DataFrame([row.to_dict() for row in self.estimates])
+
+    def to_dict(self) -> dict:
+        return {
+            "converged": self.converged,
+            "estimator": self.estimator,
+            "n_obs": self.n_obs,
+            "model": {"name": self.model_name, "source": self.model_source},
+            "data": self.data.to_dict(),
+            "fit": clean(self.fit.to_dict()) if (self.fit is not None and self.converged) else None,
+            "estimates": [row.to_dict() for row in self.estimates],
+            "r_squared": clean(dict(self.r_squared)),
+            "modification_indices": [clean(m.to_dict()) for m in self.reported_modification_indices()],
+            "warnings": list(self.warnings),
+        }
+
+    def summary(self) -> str:
+        from cfa_tool.reporting.terminal import render_text
+
+        return render_text(self)
+
+    def __str__(self) -> str:
+        return self.summary()
