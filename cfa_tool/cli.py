@@ -47,6 +47,7 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--mi-threshold", type=float, default=3.84, metavar="X",
                    help="show modification indices of at least X (default 3.84)")
     p.add_argument("--mi-top", type=int, default=None, metavar="N", help="show at most N modification indices")
+    p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
 
 
 def _version() -> str:
@@ -108,7 +109,8 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
     inputs = [Path(model), Path(data)]
     if args.json and args.json != "-":
         _refuse_overwriting_input(Path(args.json), inputs)
-    result = fit(model, data, information=args.information, mi_threshold=args.mi_threshold, mi_top=args.mi_top)
+    result = fit(model, data, information=args.information, mi_threshold=args.mi_threshold, mi_top=args.mi_top,
+                 max_iterations=args.max_iterations)
     if not result.converged:
         raise EstimationError(
             f"the estimation did not converge ({result.message}); try start values closer to the expected solution "

@@ -18,6 +18,7 @@ import numpy as np
 from scipy.linalg import cho_factor, cho_solve
 
 from cfa_tool.assessment.standardized import standardize_entries
+from cfa_tool.estimation.linalg import scaled_solve
 from cfa_tool.estimation.ml import whiten
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable
@@ -87,7 +88,7 @@ def modification_indices(model: StructuredModel, theta: np.ndarray, S: np.ndarra
     H_ct = X_c @ X_t.T
     h_cc = np.einsum("ij,ij->i", X_c, X_c)
     d = d_cand.reshape(len(candidates), -1) @ M.ravel()
-    h = h_cc - np.einsum("ij,ij->i", H_ct, np.linalg.solve(H_tt, H_ct.T).T)
+    h = h_cc - np.einsum("ij,ij->i", H_ct, scaled_solve(H_tt, H_ct.T).T)
     ok = h > 1e-10 * np.maximum(h_cc, 1e-300)
     mi = np.where(ok, 0.5 * n_obs * d**2 / np.where(ok, h, 1.0), np.nan)
     epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)

@@ -14,6 +14,7 @@ from typing import Callable
 import numpy as np
 from scipy.optimize import minimize
 
+from cfa_tool.estimation.linalg import scaled_solve
 from cfa_tool.estimation.ml import Evaluation
 
 
@@ -34,7 +35,7 @@ def minimise(
     lower: np.ndarray,
     upper: np.ndarray,
     max_iterations: int = 500,
-    tolerance: float = 1e-9,
+    tolerance: float = 1e-14,
 ) -> OptimizerResult:
     theta = np.clip(np.asarray(start, dtype=float), lower, upper)
     current = evaluate(theta)
@@ -44,24 +45,22 @@ def minimise(
     iterations = 0
     for iterations in range(1, max_iterations + 1):
         g = current.gradient
-        at_lower = (theta <= lower) & (g > 0)
-        at_upper = (theta >= upper) & (g < 0)
-        active = at_lower | at_upper
-        projected = np.where(active, 0.0, g)
-        if np.max(np.abs(projected), initial=0.0) < tolerance:
-            return OptimizerResult(theta, current.value, g, iterations - 1, True, "converged")
-        step = np.zeros_like(theta)
+        active = ((theta <= lower) & (g > 0)) | ((theta >= upper) & (g < 0))
         inactive = ~active
-        H = current.information[np.ix_(inactive, inactive)]
+        step = np.zeros_like(theta)
         try:
-            step[inactive] = -np.linalg.solve(H + 1e-10 * np.eye(len(H)) * max(1.0, np.trace(H) / max(len(H), 1)), g[inactive])
+            step[inactive] = scaled_solve(current.information[np.ix_(inactive, inactive)], -g[inactive])
         except np.linalg.LinAlgError:
-            step[inactive] = -g[inactive]
+            break
         if not np.all(np.isfinite(step)):
             break
+        # Newton decrement g' H^-1 g: about twice the distance to the minimum of F, whatever the units
+        decrement = float(-g[inactive] @ step[inactive])
+        if decrement < tolerance:
+            return OptimizerResult(theta, current.value, g, iterations - 1, True, "converged")
         slope = float(g @ step)
         if slope >= 0:  # not a descent direction: fall back to steepest descent
-            step = -projected
+            step = -np.where(active, 0.0, g)
             slope = float(g @ step)
         t = 1.0
         accepted = False
@@ -77,11 +76,20 @@ def minimise(
         new = evaluate(trial)
         if new is None:
             break
-        small_change = abs(current.value - new.value) <= 1e-15 * max(1.0, abs(new.value))
         theta, current = trial, new
-        if small_change and np.max(np.abs(np.where(active, 0.0, new.gradient)), initial=0.0) < 1e-6:
-            return OptimizerResult(theta, current.value, current.gradient, iterations, True, "converged")
     return _quasi_newton(evaluate, value, theta, current, lower, upper, iterations, max_iterations)
+
+
+def newton_decrement(ev: Evaluation, theta: np.ndarray, lower: np.ndarray, upper: np.ndarray) -> float:
+    """g' H^-1 g over the parameters not held at a bound (about 2 (F - F_min))."""
+    g = ev.gradient
+    inactive = ~(((theta <= lower) & (g > 0)) | ((theta >= upper) & (g < 0)))
+    if not inactive.any():
+        return 0.0
+    try:
+        return float(g[inactive] @ scaled_solve(ev.information[np.ix_(inactive, inactive)], g[inactive]))
+    except np.linalg.LinAlgError:
+        return float("inf")
 
 
 def _quasi_newton(evaluate, value, theta, current, lower, upper, iterations, max_iterations) -> OptimizerResult:
@@ -98,8 +106,6 @@ def _quasi_newton(evaluate, value, theta, current, lower, upper, iterations, max
     if final is None:
         return OptimizerResult(theta, current.value, current.gradient, iterations, False,
                                "the estimates left the region where the implied covariance matrix is positive definite")
-    g = final.gradient
-    projected = np.where(((res.x <= lower) & (g > 0)) | ((res.x >= upper) & (g < 0)), 0.0, g)
-    converged = bool(np.max(np.abs(projected), initial=0.0) < 1e-5)
+    converged = newton_decrement(final, res.x, lower, upper) < 1e-10
     message = "converged" if converged else f"no convergence after {iterations + res.nit} iterations"
-    return OptimizerResult(res.x, final.value, g, iterations + int(res.nit), converged, message)
+    return OptimizerResult(res.x, final.value, final.gradient, iterations + int(res.nit), converged, message)

@@ -14,6 +14,8 @@ from typing import Callable
 import numpy as np
 from scipy import stats
 
+from cfa_tool.estimation.linalg import scaled_inverse
+
 
 @dataclass(frozen=True)
 class Inference:
@@ -38,7 +40,8 @@ def observed_information(gradient: Callable[[np.ndarray], np.ndarray], theta: np
 
 
 def parameter_covariance(information: np.ndarray, n_obs: int) -> np.ndarray:
-    return 2.0 / n_obs * np.linalg.inv(information)
+    """(2/N) H^-1, inverted after scaling H to unit diagonal so parameters in very different units stay accurate."""
+    return 2.0 / n_obs * scaled_inverse(information)
 
 
 def wald_inference(values: np.ndarray, J: np.ndarray, cov_theta: np.ndarray, level: float = 0.95) -> Inference:

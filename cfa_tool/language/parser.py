@@ -125,24 +125,24 @@ def _unexpected_token_message(exc: UnexpectedToken) -> str:
     token = exc.token
     shown = "the end of the line" if token.type == "_NL" else f"'{token}'"
     expected = sorted(exc.accepts or exc.expected)
-    statement_start = {w.upper() for w in STATEMENT_WORDS} & set(expected)
-    if statement_start and len(statement_start) >= len(STATEMENT_WORDS) - 1:
+    words = [_terminal_word(name) for name in expected]
+    if "'factor'" in words:  # the parser wanted a new statement
         word = str(token)
         guess = difflib.get_close_matches(word, STATEMENT_WORDS, n=1)
         hint = f"; did you mean '{guess[0]}'?" if guess else f"; a statement starts with one of: {', '.join(STATEMENT_WORDS)}"
         return f"unknown statement {shown}{hint}"
-    words = []
-    for name in expected:
-        word = _TERMINAL_WORDS.get(name)
-        if word is None:
-            try:
-                pattern = _parser().get_terminal(name).pattern
-                word = f"'{pattern.value}'" if pattern.type == "str" else name.lower()
-            except KeyError:
-                word = name.lower()
-        if word not in words:
-            words.append(word)
-    return f"unexpected {shown}; expected {_or_list(words)}"
+    return f"unexpected {shown}; expected {_or_list(sorted(set(words)))}"
+
+
+def _terminal_word(name: str) -> str:
+    word = _TERMINAL_WORDS.get(name)
+    if word is not None:
+        return word
+    try:
+        pattern = _parser().get_terminal(name).pattern
+    except KeyError:
+        return name.lower()
+    return f"'{pattern.value}'" if pattern.type == "str" else name.lower()
 
 
 def _or_list(words: list[str]) -> str:

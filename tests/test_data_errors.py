@@ -1,0 +1,122 @@
+"""Bad data get one plain sentence naming the file and the variable, never a traceback."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.errors import DataError, ModelError, UserInputError
+
+MODEL = "factor f: a, b, c\n"
+
+
+def _frame(n: int = 50, seed: int = 1) -> pd.DataFrame:
+    rng = np.random.default_rng(seed)
+    f = rng.standard_normal(n)
+    return pd.DataFrame({c: f + rng.standard_normal(n) for c in "abc"})
+
+
+def _write(tmp_path, text: str, name: str = "d.csv"):
+    path = tmp_path / name
+    path.write_text(text)
+    return path
+
+
+@pytest.mark.parametrize(
+    "content, words",
+    [
+        ("", "is empty"),
+        ("a,b,c\n", "header but no rows"),
+        ("a,b,a\n1,2,3\n", "'a' appears more than once"),
+        ("a,,c\n1,2,3\n", "column 2 of the header has no name"),
+    ],
+)
+def test_broken_files(tmp_path, content, words):
+    with pytest.raises(DataError, match=words):
+        cfa_tool.fit(MODEL, _write(tmp_path, content))
+
+
+def test_missing_file(tmp_path):
+    with pytest.raises(DataError, match="does not exist"):
+        cfa_tool.fit(MODEL, tmp_path / "absent.csv")
+
+
+def test_text_in_an_indicator_column():
+    data = _frame().astype(object)
+    data.loc[7, "b"] = "n/a?"
+    with pytest.raises(DataError, match=r"column 'b' .* holds text \('n/a\?' in data row 8\)"):
+        cfa_tool.fit(MODEL, data)
+
+
+def test_constant_column():
+    data = _frame()
+    data["c"] = 3.0
+    with pytest.raises(DataError, match="column 'c' has the same value"):
+        cfa_tool.fit(MODEL, data)
+
+
+def test_fewer_rows_than_variables():
+    with pytest.raises(DataError, match="3 complete rows for 3 variables"):
+        cfa_tool.fit(MODEL, _frame(3))
+
+
+def test_infinite_value():
+    data = _frame()
+    data.loc[4, "a"] = np.inf
+    with pytest.raises(DataError, match="column 'a' has an infinite value in data row 5"):
+        cfa_tool.fit(MODEL, data)
+
+
+def test_singular_covariance_names_the_columns():
+    data = _frame()
+    data["d"] = data["a"] + data["b"]
+    with pytest.raises(DataError, match="singular") as info:
+        cfa_tool.fit("factor f: a, b, c, d\n", data)
+    assert all(f"'{c}'" in str(info.value) for c in "abd")
+
+
+def test_factor_named_like_a_column():
+    data = _frame()
+    data["f"] = 1.0
+    with pytest.raises(ModelError, match="'f' is declared as a factor but is also a column"):
+        cfa_tool.fit(MODEL, data)
+
+
+def test_unknown_column_suggests_a_near_name():
+    with pytest.raises(ModelError, match="unknown variable 'bb' .*did you mean 'b'"):
+        cfa_tool.fit("factor f: a, bb, c\n", _frame())
+
+
+def test_listwise_deletion_is_reported():
+    data = _frame(60)
+    data.loc[[3, 9], "a"] = np.nan
+    result = cfa_tool.fit(MODEL, data)
+    assert result.n_obs == 58
+    assert result.data.rows_dropped == 2
+    assert any("2 of 60 rows" in w for w in result.warnings)
+
+
+def test_semicolon_file_with_decimal_commas(tmp_path):
+    data = _frame()
+    plain = cfa_tool.fit(MODEL, data)
+    lines = ["a;b;c"] + [";".join(f"{v:.10f}".replace(".", ",") for v in row) for row in data.to_numpy()]
+    result = cfa_tool.fit(MODEL, _write(tmp_path, "\n".join(lines) + "\n"))
+    assert result.fit.chi_square == pytest.approx(plain.fit.chi_square, abs=1e-6)
+
+
+def test_values_far_apart_in_scale():
+    data = _frame(200)
+    data["a"] *= 1e-6
+    data["b"] *= 1e6
+    reference = cfa_tool.fit(MODEL, _frame(200))
+    result = cfa_tool.fit(MODEL, data)
+    assert result.converged
+    std = {r.variables: r.standardized for r in result.estimates}
+    for r in reference.estimates:
+        assert std[r.variables] == pytest.approx(r.standardized, abs=1e-5)
+
+
+def test_every_data_problem_is_a_user_input_error():
+    assert issubclass(DataError, UserInputError) and issubclass(ModelError, UserInputError)

@@ -1,0 +1,179 @@
+"""The model language: every statement form and every error message of the parser and checks."""
+
+from __future__ import annotations
+
+import pytest
+
+from cfa_tool.errors import ModelError
+from cfa_tool.language import parse_model
+from cfa_tool.model.parameters import build_parameter_table
+
+FULL = """# Rider experience survey: three correlated traits
+name "Rider experience"
+
+factor punctuality: on_time, short_wait, accurate_info, easy_transfer
+factor comfort: seat_ok, clean, temperature,
+    room_to_stand                               # a list continues after a comma
+factor courtesy: greeting, helpful, respectful, clear_answers
+factor service: punctuality, comfort, courtesy
+
+covary on_time, short_wait
+fix loading(punctuality, on_time) = 1
+fix variance(comfort) = 1
+equal loading(courtesy, helpful), loading(courtesy, respectful)
+start loading(comfort, clean) = 0.8
+bound variance(clean) >= 0
+bound variance(temperature) <= 10
+scale courtesy by effects
+"""
+
+
+def test_every_statement_form():
+    spec = parse_model(FULL, "full.cfa")
+    assert spec.title == "Rider experience"
+    assert spec.factor_names == ("punctuality", "comfort", "courtesy", "service")
+    assert spec.observed_names[:4] == ("on_time", "short_wait", "accurate_info", "easy_transfer")
+    assert "room_to_stand" in spec.observed_names
+    assert [p.key() for p in spec.covary] == [("on_time", "short_wait")]
+    assert spec.fixed[0].value == 1 and str(spec.fixed[0].refs[0]) == "loading(punctuality, on_time)"
+    assert [str(r) for r in spec.equal[0]] == ["loading(courtesy, helpful)", "loading(courtesy, respectful)"]
+    assert spec.starts[0].value == 0.8
+    assert (spec.bounds[0].lower, spec.bounds[0].upper) == (0, None)
+    assert (spec.bounds[1].lower, spec.bounds[1].upper) == (None, 10)
+    assert spec.scaling_of("courtesy") == "effects" and spec.scaling_of("comfort") == "marker"
+
+
+def test_table_follows_the_statements():
+    table = build_parameter_table(parse_model(FULL, "full.cfa"))
+    by_label = {p.label: p for p in table.parameters}
+    # comfort is scaled by the user's fixed variance, so its first loading stays free
+    assert by_label["factor_variance(comfort)"].offset == 1 and not by_label["factor_variance(comfort)"].free
+    assert by_label["loading(comfort, seat_ok)"].free
+    # equal loadings share one free parameter
+    assert by_label["loading(courtesy, helpful)"].terms == by_label["loading(courtesy, respectful)"].terms
+    # effects coding: the last loading is 4 minus the other three
+    last = by_label["loading(courtesy, clear_answers)"]
+    assert last.offset == 4.0 and sorted(c for _, c in last.terms) == [-2.0, -1.0]
+    assert by_label["residual_covariance(on_time, short_wait)"].free
+    # higher-order: factor-on-factor loadings, marker on the first lower factor
+    assert by_label["loading(service, punctuality)"].matrix == "B"
+    assert not by_label["loading(service, punctuality)"].free
+    k = by_label["variance(clean)".replace("variance", "residual_variance")].terms[0][0]
+    assert table.lower[k] == 0
+
+
+def test_ranges_and_quoted_names():
+    spec = parse_model('factor f: item1..item3, q08..q10, "item 99"\n', "r.cfa")
+    assert spec.observed_names == ("item1", "item2", "item3", "q08", "q09", "q10", "item 99")
+
+
+def test_covary_with_more_names_means_every_pair():
+    spec = parse_model("factor f: a, b, c, d\ncovary a, b, c\n")
+    assert sorted(p.key() for p in spec.covary) == [("a", "b"), ("a", "c"), ("b", "c")]
+
+
+def test_scale_latent_by_variance():
+    table = build_parameter_table(parse_model("factor f: a, b, c\nfactor g: d, e, h\nscale latent by variance\n"))
+    fixed = {p.label: p.offset for p in table.parameters if not p.free}
+    assert fixed == {"factor_variance(f)": 1.0, "factor_variance(g)": 1.0}
+
+
+def test_free_moves_the_marker():
+    table = build_parameter_table(parse_model("factor f: a, b, c\nfree loading(f, a)\n"))
+    fixed = {p.label for p in table.parameters if not p.free}
+    assert fixed == {"loading(f, b)"}
+
+
+def test_comments_and_blank_lines_only_around_statements():
+    spec = parse_model("\n\n# comment\n   \nfactor f: a, b, c   # trailing comment\n\n")
+    assert spec.factor_names == ("f",)
+
+
+def _error(text: str) -> ModelError:
+    with pytest.raises(ModelError) as info:
+        parse_model(text, "m.cfa")
+    return info.value
+
+
+@pytest.mark.parametrize(
+    "text, line, column, words",
+    [
+        ("facotr f: a, b, c\n", 1, 1, "unknown statement 'facotr'; did you mean 'factor'?"),
+        ("factor f a, b, c\n", 1, 10, "expected ':'"),
+        ("factor f: a, b,\n", 1, 16, "ends in the middle of a statement"),
+        ("factor f: a, , c\n", 1, 14, "unexpected ','"),
+        ("factor f: a, b, c\nfix loading(f, b) 1\n", 2, 19, "expected"),
+        ("factor f: a, b, c\nfix loadng(f, b) = 1\n", 2, 5, "unknown kind of parameter 'loadng'; did you mean 'loading'?"),
+        ("factor f: a, b, c\nfix variance(f, a) = 1\n", 2, 5, "'variance' takes 1 name"),
+        ("factor f: a, b, c\nname 'x'\n", 2, 6, "use double quotes"),
+        ("factor f: a$, b, c\n", 1, 12, "unexpected character '$'"),
+        ("factor f: item3..item1\n", 1, 11, "counts down"),
+        ("factor f: item1..q3\n", 1, 11, "must share the prefix"),
+        ("factor f: a..b\n", 1, 11, "names ending in numbers"),
+        ("factor f: a, b, c\nscale latent by magic\n", 2, 17, "unknown way to scale a factor 'magic'"),
+        ("# only a comment\n", 1, 1, "declares no factors"),
+        ("", 1, 1, "declares no factors"),
+        ("factor f: a, b, c\nfactor f: d, e, g\n", 2, 8, "factor 'f' is declared twice"),
+        ("factor f: a, b, a\n", 1, 17, "'a' is listed twice"),
+        ("factor f: g, a, b\nfactor g: f, c, d\n", 2, 8, "in a circle: f -> g -> f"),
+        ("factor f: f, a, b\n", 1, 11, "cannot be an indicator of itself"),
+        ("factor f: a, b, c\nfix loading(f, d) = 1\n", 2, 5, "'d' is not a factor or an indicator"),
+        ("factor f: a, b, c\nfactor g: d, e, h\nfix loading(f, d) = 1\n", 3, 5, "'d' is not an indicator of 'f'"),
+        ("factor f: a, b, c\nfix loading(a, f) = 1\n", 2, 5, "'a' is not a factor"),
+        ("factor f: a, b, c\nfix covariance(a, b) = 0.2\n", 2, 5, "declare it with 'covary a, b' first"),
+        ("factor f: a, b, c\nfactor g: d, e, h\nuncorrelated f, g\nfix covariance(f, g) = 0.3\n", 4, 5, "fixed at zero by 'uncorrelated'"),
+        ("factor f: a, b, c\nfix variance(a) = 1\nfix variance(a) = 2\n", 3, 5, "fixed to 2 here but to 1 on line 2"),
+        ("factor f: a, b, c\nfix variance(a) = 1\nfree variance(a)\n", 3, 6, "both fixed (line 2) and freed"),
+        ("factor f: a, b, c\nfix variance(a) = 1\nstart variance(a) = 2\n", 3, 7, "start value for it has no effect"),
+        ("factor f: a, b, c\nfix variance(a) = 1\nbound variance(a) >= 0\n", 3, 7, "bound on it has no effect"),
+        ("factor f: a, b, c\nbound variance(a) >= 2\nbound variance(a) <= 1\n", 3, 7, "leave no room"),
+        ("factor f: a, b, c\nfix variance(a) = 1\nfix variance(b) = 2\nequal variance(a), variance(b)\n", 4, 7, "fixed to different values"),
+        ("factor f: a, b, c\nequal loading(f, b), variance(c)\n", 2, 7, "one kind"),
+        ("factor f: a, b, c\ncovary a, b\nuncorrelated a, b\n", 3, 14, "no statement is needed"),
+        ("factor f: a, b, c\nfactor g: d, e, h\ncovary f, g\nuncorrelated f, g\n", 4, 14, "both to covary and to be uncorrelated"),
+        ("factor f: a, b, c\ncovary f, a\n", 2, 11, "a factor and an indicator"),
+        ("factor f: a, b, c\ncovary a, a\n", 2, 11, "names 'a' twice"),
+        ("factor f: a, b, c\ncovary a, zz\n", 2, 11, "'zz' is not a factor or an indicator"),
+        ("factor f: a\n", 1, 8, "single indicator 'a'"),
+        ("factor f: a, b\n", 1, 8, "two indicators and no correlation"),
+        ("factor f: a, b, c\nscale f by effects\nfactor g: d\nfix variance(d) = 0\nname \"x\"\nname \"y\"\n", 6, 1, "already has a name"),
+    ],
+)
+def test_error_messages(text, line, column, words):
+    err = _error(text)
+    assert words in err.message, err.message
+    assert (err.location.line, err.location.column) == (line, column), err.one_line()
+    assert err.one_line().startswith(f"m.cfa:{line}:{column}: ")
+
+
+def test_error_excerpt_has_a_caret_under_the_column():
+    err = _error("factor f: a, b, c\nfix loadng(f, b) = 1\n")
+    assert err.excerpt().splitlines() == ["    fix loadng(f, b) = 1", "        ^"]
+
+
+def test_identified_special_cases_are_accepted():
+    # a single indicator with its residual fixed, two indicators correlated with another factor,
+    # and two indicators with equal loadings
+    parse_model("factor f: a\nfix variance(a) = 0\n")
+    parse_model("factor f: a, b\nfactor g: c, d, e\n")
+    parse_model("factor f: a, b\nequal loading(f, a), loading(f, b)\n")
+
+
+def test_non_utf8_model_file(tmp_path):
+    from cfa_tool.language import read_model_file
+
+    path = tmp_path / "latin.cfa"
+    path.write_bytes(b"factor f: a, b, c\n# caf\xe9\n")
+    with pytest.raises(ModelError) as info:
+        read_model_file(path)
+    assert "not UTF-8" in info.value.message
+    assert (info.value.location.line, info.value.location.column) == (2, 6)
+
+
+def test_huge_model_file_is_refused(tmp_path):
+    from cfa_tool.language import read_model_file
+
+    path = tmp_path / "huge.cfa"
+    path.write_text("# filler\n" * 1_200_000)
+    with pytest.raises(ModelError, match="at most"):
+        read_model_file(path)

@@ -1,0 +1,127 @@
+"""Properties any correct ML factor analysis must have (Bollen 1989, ch. 7; Joreskog 1969)."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from tests.conftest import THREE_FACTORS, simulate_cfa
+
+
+def _std_loadings(result) -> dict:
+    return {r.variables: r.standardized for r in result.estimates if r.kind == "loading"}
+
+
+def test_rescaling_an_indicator_changes_nothing_that_matters(hs_data, hs_three):
+    # ML is scale invariant: multiplying x5 by 10 leaves chi-square and standardized loadings as they were.
+    scaled = hs_data.copy()
+    scaled["x5"] = scaled["x5"] * 10
+    result = cfa_tool.fit(THREE_FACTORS, scaled)
+    assert result.fit.chi_square == pytest.approx(hs_three.fit.chi_square, rel=1e-7)
+    for key, value in _std_loadings(hs_three).items():
+        assert _std_loadings(result)[key] == pytest.approx(value, abs=1e-6)
+    unscaled = {r.variables: r.estimate for r in hs_three.estimates}
+    rescaled = {r.variables: r.estimate for r in result.estimates}
+    assert rescaled[("textual", "x5")] == pytest.approx(10 * unscaled[("textual", "x5")], rel=1e-6)
+
+
+@pytest.mark.parametrize("scaling", ["variance", "effects"])
+def test_scaling_choice_leaves_fit_unchanged(hs_data, hs_three, scaling):
+    result = cfa_tool.fit(THREE_FACTORS + f"scale latent by {scaling}\n", hs_data)
+    assert result.fit.chi_square == pytest.approx(hs_three.fit.chi_square, rel=1e-7)
+    assert result.fit.df == hs_three.fit.df
+    for key, value in _std_loadings(hs_three).items():
+        assert _std_loadings(result)[key] == pytest.approx(value, abs=1e-6)
+    loadings = [r.estimate for r in result.estimates if r.kind == "loading" and r.variables[0] == "speed"]
+    if scaling == "variance":
+        assert {r.variables: r.estimate for r in result.estimates if r.kind == "factor_variance"} == {
+            ("visual",): 1.0, ("textual",): 1.0, ("speed",): 1.0}
+    else:  # effects coding: loadings of a factor average 1 (Little, Slegers & Card 2006)
+        assert np.mean(loadings) == pytest.approx(1.0, abs=1e-12)
+        tied = [r for r in result.estimates if r.variables == ("speed", "x9")][0]
+        assert np.isfinite(tied.se) and tied.se > 0
+
+
+def test_estimates_recover_population_values():
+    loadings = np.zeros((8, 2))
+    loadings[:4, 0] = [1.0, 0.8, 1.2, 0.6]
+    loadings[4:, 1] = [1.0, 1.5, 0.7, 0.9]
+    phi = np.array([[0.9, 0.3], [0.3, 0.5]])
+    theta = np.diag([0.4, 0.5, 0.3, 0.6, 0.5, 0.4, 0.6, 0.3])
+    data = simulate_cfa(loadings, phi, theta, n=20000, seed=11)
+    result = cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\n", data)
+    est = {r.variables: r for r in result.estimates}
+    truth = {("f", "y2"): 0.8, ("f", "y3"): 1.2, ("f", "y4"): 0.6, ("g", "y6"): 1.5, ("g", "y7"): 0.7,
+             ("g", "y8"): 0.9, ("f",): 0.9, ("g",): 0.5, ("f", "g"): 0.3, ("y3",): 0.3, ("y8",): 0.3}
+    for key, value in truth.items():
+        row = est[key]
+        assert abs(row.estimate - value) < 4 * row.se, (key, row.estimate, row.se)
+    # the model is true: the chi-square test should not reject at any usual level
+    assert result.fit.p_value > 0.001
+    assert result.fit.rmsea < 0.02
+
+
+def test_freeing_the_largest_modification_index_lowers_chi_square_by_about_that_much(hs_data, hs_three):
+    top = hs_three.modification_indices[0]
+    assert top.variables == ("visual", "x9")
+    freed = cfa_tool.fit("factor visual: x1, x2, x3, x9\nfactor textual: x4..x6\nfactor speed: x7..x9\n", hs_data)
+    drop = hs_three.fit.chi_square - freed.fit.chi_square
+    assert freed.fit.df == hs_three.fit.df - 1
+    # the score test approximates the likelihood-ratio drop (Sorbom 1989): same size, within a quarter here
+    assert drop == pytest.approx(top.index, rel=0.25)
+    new_value = [r.estimate for r in freed.estimates if r.variables == ("visual", "x9")][0]
+    assert new_value == pytest.approx(top.expected_change, rel=0.25)
+
+
+def test_equality_constraint_costs_one_degree_of_freedom(hs_data, hs_three):
+    result = cfa_tool.fit(THREE_FACTORS + "equal loading(textual, x5), loading(textual, x6)\n", hs_data)
+    assert result.fit.df == hs_three.fit.df + 1
+    assert result.fit.chi_square >= hs_three.fit.chi_square
+    est = {r.variables: r.estimate for r in result.estimates}
+    assert est[("textual", "x5")] == est[("textual", "x6")]
+
+
+def test_bound_holds_and_binds(hs_data):
+    result = cfa_tool.fit(THREE_FACTORS + "bound loading(visual, x2) <= 0.4\n", hs_data)
+    assert result.converged
+    est = {r.variables: r.estimate for r in result.estimates}
+    assert est[("visual", "x2")] == pytest.approx(0.4, abs=1e-9)
+
+
+def test_observed_and_expected_information_agree_under_a_true_model():
+    # At the ML estimates of a correct model both information matrices estimate the same thing
+    # (Efron & Hinkley 1978), so the standard errors differ only by sampling noise.
+    loadings = np.zeros((6, 2))
+    loadings[:3, 0] = [1.0, 0.8, 1.2]
+    loadings[3:, 1] = [1.0, 1.5, 0.7]
+    data = simulate_cfa(loadings, np.array([[0.9, 0.3], [0.3, 0.5]]), np.diag([0.4, 0.5, 0.3, 0.6, 0.5, 0.4]), n=3000, seed=5)
+    model = "factor f: y1..y3\nfactor g: y4..y6\n"
+    expected = cfa_tool.fit(model, data)
+    observed = cfa_tool.fit(model, data, information="observed")
+    for a, b in zip(expected.estimates, observed.estimates):
+        assert b.estimate == a.estimate
+        if a.free:
+            assert b.se == pytest.approx(a.se, rel=0.05), a.variables
+
+
+def test_non_convergence_is_marked_and_never_reported_as_a_fit(hs_data):
+    result = cfa_tool.fit(THREE_FACTORS, hs_data, max_iterations=1)
+    assert not result.converged
+    assert result.to_dict()["fit"] is None
+    assert any("did not converge" in w for w in result.warnings)
+
+
+def test_heywood_case_is_reported():
+    # Three indicators with r12 = r13 = .8 and r23 = .5 force a standardized loading of
+    # sqrt(.8 * .8 / .5) = 1.13 for y1, hence a negative residual variance (a Heywood case).
+    corr = np.array([[1.0, 0.8, 0.8], [0.8, 1.0, 0.5], [0.8, 0.5, 1.0]])
+    rng = np.random.default_rng(3)
+    z = rng.standard_normal((500, 3))
+    z = (z - z.mean(0)) @ np.linalg.inv(np.linalg.cholesky(np.cov(z.T, bias=True))).T
+    data = pd.DataFrame(z @ np.linalg.cholesky(corr).T, columns=["y1", "y2", "y3"])
+    result = cfa_tool.fit("factor f: y1, y2, y3\n", data)
+    assert any("Heywood case" in w and "'y1'" in w for w in result.warnings)
+    resid = [r.estimate for r in result.estimates if r.variables == ("y1",)][0]
+    assert resid == pytest.approx(1.0 - 0.8 * 0.8 / 0.5, abs=1e-6)
