@@ -136,6 +136,11 @@ class FitResult:
             "fit": clean(self.fit.to_dict()) if (self.fit is not None and self.converged) else None,
             "estimates": [row.to_dict() for row in self.estimates],
             "r_squared": clean(dict(self.r_squared)),
+            "residuals": {
+                "variables": list(self.observed),
+                "covariance": clean((self.sample_covariance - self.implied_covariance).tolist()),
+                "correlation": clean(self.residual_correlations.tolist()),
+            },
             "modification_indices": [clean(m.to_dict()) for m in self.reported_modification_indices()],
             "warnings": list(self.warnings),
         }

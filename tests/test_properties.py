@@ -125,3 +125,23 @@ def test_heywood_case_is_reported():
     assert any("Heywood case" in w and "'y1'" in w for w in result.warnings)
     resid = [r.estimate for r in result.estimates if r.variables == ("y1",)][0]
     assert resid == pytest.approx(1.0 - 0.8 * 0.8 / 0.5, abs=1e-6)
+
+
+def test_rotational_indeterminacy_is_caught_after_fitting():
+    # Two correlated factors that both load on all six items can be rotated into each other:
+    # the information matrix is singular (Bollen 1989, ch. 7), which the tool must say, naming parameters.
+    from cfa_tool.errors import EstimationError
+
+    loadings = np.zeros((6, 2))
+    loadings[:3, 0] = [1.0, 0.8, 1.2]
+    loadings[3:, 1] = [1.0, 1.5, 0.7]
+    data = simulate_cfa(loadings, np.array([[0.9, 0.3], [0.3, 0.5]]), np.diag([0.4, 0.5, 0.3, 0.6, 0.5, 0.4]), n=500, seed=8)
+    with pytest.raises(EstimationError, match="not identified .* parameters involved are: .*loading"):
+        cfa_tool.fit("factor f: y1..y6\nfactor g: y1..y6\n", data)
+
+
+def test_counting_rule_is_checked_before_fitting(hs_data):
+    from cfa_tool.errors import ModelError
+
+    with pytest.raises(ModelError, match="free parameters but 3 indicators give only 6"):
+        cfa_tool.fit("factor f: x1, x2, x3\ncovary x1, x2, x3\n", hs_data)

@@ -18,7 +18,8 @@ def check_counting_rule(spec: Spec, table: ParameterTable) -> None:
         raise ModelError(
             f"the model has {table.n_free} free parameters but {p} indicators give only {moments} variances and "
             f"covariances, so it cannot be identified (degrees of freedom {moments - table.n_free}); add constraints or indicators",
-            None,
+            spec.factors[0].name.location,
+            spec.source_line(spec.factors[0].name.location),
         )
     for j, factor in enumerate(table.latent):
         scaled = any(

@@ -20,6 +20,8 @@ def unit(value, digits: int = 3) -> str:
     if missing(value):
         return ""
     text = f"{value:.{digits}f}"
+    if float(text) == 0.0:
+        text = text.lstrip("-")
     if text.startswith("0."):
         return text[1:]
     if text.startswith("-0."):

@@ -105,6 +105,23 @@ def modification_table(result) -> Table | None:
     return table
 
 
+MAX_RESIDUAL_MATRIX = 20
+
+
+def residual_table(result) -> Table | None:
+    """Lower triangle of the residual correlations (sample minus model)."""
+    names = result.observed
+    if len(names) > MAX_RESIDUAL_MATRIX or len(names) < 2:
+        return None
+    r = result.residual_correlations
+    table = _table("Residual correlations (sample minus model)", [("", "left")] + [(str(k + 1), "right") for k in range(len(names) - 1)])
+    for i, name in enumerate(names):
+        if i == 0:
+            continue
+        table.add_row(f"{i + 1} {name}", *[unit(r[i, j], 2) for j in range(i)], *[""] * (len(names) - 1 - i))
+    return table
+
+
 def render(result, console: Console) -> None:
     title = result.model_name
     console.print(Text(title, style="bold underline"))
@@ -124,9 +141,9 @@ def render(result, console: Console) -> None:
         console.print()
     for table in estimate_tables(result):
         console.print(table)
-    mi = modification_table(result)
-    if mi is not None:
-        console.print(mi)
+    for extra in (residual_table(result) if result.converged else None, modification_table(result)):
+        if extra is not None:
+            console.print(extra)
     if result.warnings:
         console.print(Text("Warnings", style="bold"))
         for w in result.warnings:
