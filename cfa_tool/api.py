@@ -2,10 +2,12 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
 from pathlib import Path
 
 import pandas as pd
 
+from cfa_tool.data.groups import split_moments
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool.data.readers import read_table
@@ -37,8 +39,8 @@ def load_frame(data: pd.DataFrame | str | Path) -> tuple[pd.DataFrame, str]:
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
-def prepare(model: str | Path | Spec, data: pd.DataFrame | str | Path) -> tuple[Spec, SampleMoments]:
-    """Parse the model, read the data, check one against the other and compute the moments."""
+def read_inputs(model: str | Path | Spec, data: pd.DataFrame | str | Path) -> tuple[Spec, pd.DataFrame, str]:
+    """Parse the model, read the data and check one against the other."""
     spec = load_spec(model)
     frame, source = load_frame(data)
     columns = [str(c) for c in frame.columns]
@@ -47,30 +49,66 @@ def prepare(model: str | Path | Spec, data: pd.DataFrame | str | Path) -> tuple[
         raise OptionError(f"{source}: the column name '{dup}' appears more than once")
     frame = frame.set_axis(columns, axis=1)
     check_columns(spec, columns, source)
+    return spec, frame, source
+
+
+def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,
+                reference_group: str | None = None) -> tuple[list[tuple[str | None, SampleMoments]], list[str]]:
+    """Per-group (or single) sample moments of the model variables, with notes on rows left out."""
+    notes: list[str] = []
+    if group is None:
+        if reference_group is not None:
+            raise OptionError("a reference group needs a group column")
+        return [(None, sample_moments(frame, spec.observed_names, source))], notes
+    if group in spec.observed_names:
+        raise OptionError(f"'{group}' is an indicator in the model and cannot also be the group column")
+    groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group)
+    if no_group:
+        notes.append(f"{no_group} rows have no value in the group column '{group}' and were left out")
+    return groups, notes
+
+
+def prepare(model: str | Path | Spec, data: pd.DataFrame | str | Path) -> tuple[Spec, SampleMoments]:
+    """Single-group moments of a model's variables (see :func:`moments_for` for groups)."""
+    spec, frame, source = read_inputs(model, data)
     return spec, sample_moments(frame, spec.observed_names, source)
 
 
-def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path, **options) -> FitResult:
+def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None,
+        reference_group: str | None = None, **options) -> FitResult:
     """Fit a confirmatory factor model by maximum likelihood.
 
     ``model``: model text, a path to a model file, or a parsed Spec.
     ``data``: a DataFrame or a path to a CSV file.
+    ``group``: a column whose values define groups (multi-group fit with a mean
+    structure); ``reference_group``: the group whose factor means are fixed at
+    zero (default: the first label in sorted order).
     ``options``: ``information`` ('expected' or 'observed'), ``mi_threshold``,
     ``mi_top``, ``max_iterations``.
     """
+    fit_options = make_options(options)
+    spec, frame, source = read_inputs(model, data)
+    groups, notes = moments_for(spec, frame, source, group, reference_group)
+    result = fit_moments(spec, groups, fit_options, group_column=group)
+    if notes:
+        result = replace(result, warnings=tuple(notes) + result.warnings)
+    return result
+
+
+def make_options(options: dict) -> FitOptions:
     try:
-        fit_options = FitOptions(**options)
+        return FitOptions(**options)
     except TypeError as exc:
         raise OptionError(f"unknown option: {exc}") from None
-    spec, moments = prepare(model, data)
-    return fit_moments(spec, moments, fit_options)
 
 
-def check(model: str | Path | Spec, data: pd.DataFrame | str | Path) -> Spec:
+def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None) -> Spec:
     """Parse and validate a model against data without fitting it."""
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
-    spec, _ = prepare(model, data)
-    check_counting_rule(spec, build_parameter_table(spec))
+    spec, frame, source = read_inputs(model, data)
+    groups, _ = moments_for(spec, frame, source, group)
+    labels = tuple(label for label, _ in groups) if group is not None else None
+    check_counting_rule(spec, build_parameter_table(spec, labels))
     return spec

@@ -1,4 +1,4 @@
-"""The fitting pipeline: Spec + SampleMoments -> FitResult.
+"""The fitting pipeline: Spec + sample moments (one or several groups) -> FitResult.
 
 Each step is a call into its own module; nothing here computes statistics
 itself.
@@ -11,22 +11,23 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.assessment.admissibility import admissibility_warnings
-from cfa_tool.assessment.fit_indices import fit_indices
+from cfa_tool.assessment.fit_indices import fit_indices, srmr_value
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
 from cfa_tool.assessment.modification import modification_indices
 from cfa_tool.assessment.residuals import correlation_residuals
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
+from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments
 from cfa_tool.errors import OptionError
-from cfa_tool.estimation.ml import NormalLikelihood
+from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood
 from cfa_tool.estimation.optimizer import minimise
 from cfa_tool.inference.standard_errors import observed_information, parameter_covariance, wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
-from cfa_tool.model.parameters import build_parameter_table
+from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.starts import starting_values
-from cfa_tool.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult
+from cfa_tool.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult
 
 ESTIMATOR = "maximum likelihood"
 INFORMATION_CHOICES = ("expected", "observed")
@@ -48,53 +49,98 @@ class FitOptions:
             raise OptionError("the iteration limit must be at least 1")
 
 
-def fit_moments(spec: Spec, moments: SampleMoments, options: FitOptions = FitOptions()) -> FitResult:
-    """Fit ``spec`` by normal-theory maximum likelihood to the sample moments."""
-    table = build_parameter_table(spec)
+@dataclass(frozen=True)
+class Estimation:
+    """The fitted model before any assessment: what workflows need to reuse a fit."""
+
+    table: ParameterTable
+    model: StructuredModel
+    likelihood: NormalLikelihood
+    theta: np.ndarray
+    value: float
+    converged: bool
+    iterations: int
+    message: str
+
+
+def _ordered(moments: SampleMoments, observed: tuple[str, ...]) -> GroupMoments:
+    order = [moments.names.index(n) for n in observed]
+    return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs)
+
+
+def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options: FitOptions = FitOptions(),
+             start: np.ndarray | None = None) -> Estimation:
+    """Build the model and minimise the ML discrepancy (no standard errors, no indices)."""
+    multi = len(groups) > 1 or groups[0][0] is not None
+    table = build_parameter_table(spec, tuple(label for label, _ in groups) if multi else None)
     check_counting_rule(spec, table)
-    if tuple(moments.names) != table.observed:
-        order = [moments.names.index(n) for n in table.observed]
-        S = moments.covariance[np.ix_(order, order)]
-        means = moments.means[order]
-    else:
-        S, means = moments.covariance, moments.means
     model = StructuredModel(table)
-    likelihood = NormalLikelihood(model, S)
-    start = starting_values(table, S)
+    moments = [_ordered(m, table.observed) for _, m in groups]
+    likelihood = NormalLikelihood(model, moments)
+    if start is None or len(start) != table.n_free:
+        cov, mean = pooled([m for _, m in groups])
+        order = [groups[0][1].names.index(n) for n in table.observed]
+        start = starting_values(table, cov[np.ix_(order, order)], mean[order])
     opt = minimise(likelihood.evaluate, likelihood.value, start, table.lower, table.upper, options.max_iterations)
-    theta = opt.theta
-    n = moments.n_obs
-    mats = model.matrices(theta)
-    sigma = mats.implied_covariance()
+    return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, opt.message)
+
+
+def fit_moments(spec: Spec, moments: SampleMoments | list[tuple[str | None, SampleMoments]],
+                options: FitOptions = FitOptions(), group_column: str | None = None) -> FitResult:
+    """Fit ``spec`` by normal-theory maximum likelihood to one or several groups' moments."""
+    groups = [(None, moments)] if isinstance(moments, SampleMoments) else list(moments)
+    est = estimate(spec, groups, options)
+    return assess(spec, groups, est, options, group_column)
+
+
+def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Estimation, options: FitOptions,
+           group_column: str | None = None) -> FitResult:
+    """Standard errors, fit indices, standardized values, modification indices and warnings."""
+    table, model, likelihood, theta = est.table, est.model, est.likelihood, est.theta
+    multi = table.mean_structure
+    n_total = likelihood.n_total
     values = model.entry_values(theta)
     codes, rows, cols = table.entry_arrays()
-    std_all, std_lv = standardize_entries(mats, codes, rows, cols, values)
+    group_of = table.group_array()
+    std_all = np.empty_like(values)
+    std_lv = np.empty_like(values)
+    mats = [model.matrices(theta, g) for g in range(table.n_groups)]
+    for g in range(table.n_groups):
+        sel = group_of == g
+        std_all[sel], std_lv[sel] = standardize_entries(mats[g], codes[sel], rows[sel], cols[sel], values[sel])
 
     warnings: list[str] = []
-    if moments.rows_dropped:
-        warnings.append(
-            f"{moments.rows_dropped} of {moments.rows_read} rows had a missing answer on a model variable and were left out "
-            f"(listwise deletion); {n} rows were analysed"
-        )
+    for label, m in groups:
+        if m.rows_dropped:
+            where = f" in group '{label}'" if label is not None else ""
+            warnings.append(
+                f"{m.rows_dropped} of {m.rows_read} rows{where} had a missing answer on a model variable and were left out "
+                f"(listwise deletion); {m.n_obs} rows were analysed"
+            )
     fit = None
     inference = None
     mis: list = []
-    if opt.converged:
+    if est.converged:
         evaluation = likelihood.evaluate(theta)
         information = evaluation.information
         check_information_rank(information, table.free_labels)
         if options.information == "observed":
             information = observed_information(lambda t: likelihood.evaluate(t).gradient, theta)
-        cov_theta = parameter_covariance(information, n)
-        inference = wald_inference(values, model.J, cov_theta)
-        fit = fit_indices(S, sigma, opt.value, n, table.n_free)
-        mis = modification_indices(model, theta, S, n, exogenous_factors(spec))
-        warnings.extend(admissibility_warnings(mats, table.observed, table.latent))
+        inference = wald_inference(values, model.J, parameter_covariance(information, n_total))
+        per_group = []
+        for g, gm in enumerate(likelihood.groups):
+            dev = gm.mean - mats[g].implied_mean() if multi else None
+            per_group.append((gm.covariance, mats[g].implied_covariance(), gm.n_obs, dev))
+        fit = fit_indices(per_group, est.value, table.n_free, multi)
+        mis = modification_indices(model, theta, likelihood, exogenous_factors(spec))
+        for g, m in enumerate(mats):
+            prefix = f"group '{table.groups[g]}': " if multi else ""
+            warnings.extend(prefix + w for w in admissibility_warnings(m, table.observed, table.latent))
     else:
-        warnings.append(f"the estimation did not converge ({opt.message}); no result from it should be interpreted")
+        warnings.append(f"the estimation did not converge ({est.message}); no result from it should be interpreted")
 
-    estimates = []
     nan = float("nan")
+    estimates = []
     for e, par in enumerate(table.parameters):
         if inference is not None:
             se, z, p = inference.se[e], inference.z[e], inference.p_value[e]
@@ -115,31 +161,62 @@ def fit_moments(spec: Spec, moments: SampleMoments, options: FitOptions = FitOpt
                 standardized=float(std_all[e]),
                 standardized_latent=float(std_lv[e]),
                 origin=par.origin,
+                group=table.groups[par.group] if multi else None,
             )
         )
-    sds = np.sqrt(np.diag(S))
-    data = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
-                       tuple(float(v) for v in means), tuple(float(v) for v in sds))
+
+    group_results = []
+    for g, ((label, m), gm) in enumerate(zip(groups, likelihood.groups)):
+        sigma = mats[g].implied_covariance()
+        share = likelihood.n_total * likelihood.weights[g] * likelihood.group_discrepancy(theta, g) if est.converged else None
+        group_results.append(
+            GroupResult(
+                label=label,
+                data=_summary(m, table.observed, gm),
+                chi_square=share,
+                srmr=srmr_value(gm.covariance, sigma) if est.converged else None,
+                r_squared=dict(zip(table.observed, (float(v) for v in r_squared(mats[g])))),
+                sample_covariance=gm.covariance,
+                implied_covariance=sigma,
+                residual_correlations=correlation_residuals(gm.covariance, sigma),
+                sample_mean=gm.mean,
+                implied_mean=mats[g].implied_mean() if multi else None,
+            )
+        )
+    first = groups[0][1]
+    overall = DataSummary(
+        first.source,
+        sum(m.rows_read for _, m in groups),
+        sum(m.rows_dropped for _, m in groups),
+        n_total,
+        table.observed,
+        group_results[0].data.means if not multi else tuple(float(v) for v in pooled([m for _, m in groups])[1]),
+        group_results[0].data.sds if not multi else tuple(float(v) for v in np.sqrt(np.diag(pooled([m for _, m in groups])[0]))),
+    )
     return FitResult(
         model_name=spec.title or spec.source,
         model_source=spec.source,
         model_text=spec.text,
         estimator=ESTIMATOR,
-        converged=opt.converged,
-        iterations=opt.iterations,
-        message=opt.message,
-        n_obs=n,
-        data=data,
+        converged=est.converged,
+        iterations=est.iterations,
+        message=est.message,
+        n_obs=n_total,
+        data=overall,
         observed=table.observed,
         latent=table.latent,
         fit=fit,
         estimates=tuple(estimates),
         modification_indices=tuple(mis),
-        r_squared=dict(zip(table.observed, (float(v) for v in r_squared(mats)))),
-        sample_covariance=S,
-        implied_covariance=sigma,
-        residual_correlations=correlation_residuals(S, sigma),
+        groups=tuple(group_results),
+        group_column=group_column,
         warnings=tuple(warnings),
         mi_threshold=options.mi_threshold,
         mi_top=options.mi_top,
+        theta=theta,
     )
+
+
+def _summary(m: SampleMoments, observed: tuple[str, ...], gm: GroupMoments) -> DataSummary:
+    return DataSummary(m.source, m.rows_read, m.rows_dropped, m.n_obs, observed,
+                       tuple(float(v) for v in gm.mean), tuple(float(v) for v in np.sqrt(np.diag(gm.covariance))))

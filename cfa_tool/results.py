@@ -85,6 +85,32 @@ class DataSummary:
 
 
 @dataclass(frozen=True, eq=False)
+class GroupResult:
+    """What is specific to one group (the only group of a single-group fit)."""
+
+    label: str | None
+    data: DataSummary
+    chi_square: float | None  # this group's share of the chi-square
+    srmr: float | None
+    r_squared: dict[str, float]
+    sample_covariance: np.ndarray = field(repr=False)
+    implied_covariance: np.ndarray = field(repr=False)
+    residual_correlations: np.ndarray = field(repr=False)
+    sample_mean: np.ndarray = field(repr=False)
+    implied_mean: np.ndarray | None = field(repr=False, default=None)
+
+    def residuals_dict(self, observed: tuple[str, ...]) -> dict:
+        out = {
+            "variables": list(observed),
+            "covariance": clean((self.sample_covariance - self.implied_covariance).tolist()),
+            "correlation": clean(self.residual_correlations.tolist()),
+        }
+        if self.implied_mean is not None:
+            out["mean"] = clean((self.sample_mean - self.implied_mean).tolist())
+        return out
+
+
+@dataclass(frozen=True, eq=False)
 class FitResult:
     model_name: str
     model_source: str
@@ -100,21 +126,41 @@ class FitResult:
     fit: FitIndices | None
     estimates: tuple[EstimateRow, ...]
     modification_indices: tuple[ModificationIndex, ...]
-    r_squared: dict[str, float]
-    sample_covariance: np.ndarray = field(repr=False)
-    implied_covariance: np.ndarray = field(repr=False)
-    residual_correlations: np.ndarray = field(repr=False)
+    groups: tuple[GroupResult, ...]
+    group_column: str | None = None
     warnings: tuple[str, ...] = ()
     mi_threshold: float = DEFAULT_MI_THRESHOLD
     mi_top: int | None = None
+    theta: np.ndarray | None = field(repr=False, default=None)
+
+    # -- single-group conveniences (the first group when there are several)
+    @property
+    def r_squared(self) -> dict[str, float]:
+        return self.groups[0].r_squared
+
+    @property
+    def sample_covariance(self) -> np.ndarray:
+        return self.groups[0].sample_covariance
+
+    @property
+    def implied_covariance(self) -> np.ndarray:
+        return self.groups[0].implied_covariance
+
+    @property
+    def residual_correlations(self) -> np.ndarray:
+        return self.groups[0].residual_correlations
+
+    @property
+    def multigroup(self) -> bool:
+        return self.group_column is not None
 
     # -- views
     def reported_modification_indices(self) -> list[ModificationIndex]:
         rows = [m for m in self.modification_indices if m.index >= self.mi_threshold]
         return rows[: self.mi_top] if self.mi_top is not None else rows
 
-    def largest_residual_correlation(self) -> tuple[str, str, float] | None:
-        r = self.residual_correlations
+    def largest_residual_correlation(self, group: int = 0) -> tuple[str, str, float] | None:
+        r = self.groups[group].residual_correlations
         if r.shape[0] < 2:
             return None
         lower = np.tril(np.abs(r), k=-1)
@@ -127,7 +173,7 @@ class FitResult:
         return pd.DataFrame([row.to_dict() for row in self.estimates])
 
     def to_dict(self) -> dict:
-        return {
+        out = {
             "converged": self.converged,
             "estimator": self.estimator,
             "n_obs": self.n_obs,
@@ -135,15 +181,26 @@ class FitResult:
             "data": self.data.to_dict(),
             "fit": clean(self.fit.to_dict()) if (self.fit is not None and self.converged) else None,
             "estimates": [row.to_dict() for row in self.estimates],
-            "r_squared": clean(dict(self.r_squared)),
-            "residuals": {
-                "variables": list(self.observed),
-                "covariance": clean((self.sample_covariance - self.implied_covariance).tolist()),
-                "correlation": clean(self.residual_correlations.tolist()),
-            },
-            "modification_indices": [clean(m.to_dict()) for m in self.reported_modification_indices()],
-            "warnings": list(self.warnings),
         }
+        if self.multigroup:
+            out["group_column"] = self.group_column
+            out["groups"] = [
+                {
+                    "name": g.label,
+                    "n_obs": g.data.n_obs,
+                    "chi_square": clean(g.chi_square) if self.converged else None,
+                    "srmr": clean(g.srmr) if self.converged else None,
+                    "r_squared": clean(dict(g.r_squared)),
+                    "residuals": g.residuals_dict(self.observed),
+                }
+                for g in self.groups
+            ]
+        else:
+            out["r_squared"] = clean(dict(self.r_squared))
+            out["residuals"] = self.groups[0].residuals_dict(self.observed)
+        out["modification_indices"] = [clean(m.to_dict()) for m in self.reported_modification_indices()]
+        out["warnings"] = list(self.warnings)
+        return out
 
     def summary(self) -> str:
         from cfa_tool.reporting.terminal import render_text

@@ -9,6 +9,9 @@
   statistic is (N - 1) F; ours is N F, so the noncentrality estimate is
   (chi2 - df) / N;
 * SRMR: root mean square of (s_ij - sigma_ij) / sqrt(s_ii s_jj) over i <= j (Bentler 1995);
+  with groups, the group-size weighted mean of the groups' values (common practice);
+* with G groups the RMSEA is multiplied by sqrt(G) (Steiger 1998), and the
+  baseline model has free means and variances in every group;
 * log-likelihood of the normal model, AIC (Akaike 1974), BIC (Schwarz 1978) and
   sample-size-adjusted BIC (Sclove 1987).
 """
@@ -111,11 +114,13 @@ def srmr_value(S: np.ndarray, sigma: np.ndarray) -> float:
     return float(np.sqrt(np.mean(lower**2)))
 
 
-def normal_log_likelihood(S: np.ndarray, sigma: np.ndarray, n_obs: int) -> float:
-    """Log-likelihood of the covariance structure (means saturated), divisor-N S."""
+def normal_log_likelihood(S: np.ndarray, sigma: np.ndarray, n_obs: int, mean_dev: np.ndarray | None = None) -> float:
+    """Log-likelihood of the normal model, divisor-N S; means saturated unless ``mean_dev`` (m - mu) is given."""
     p = S.shape[0]
-    sign, logdet = np.linalg.slogdet(sigma)
+    _, logdet = np.linalg.slogdet(sigma)
     trace = float(np.trace(np.linalg.solve(sigma, S)))
+    if mean_dev is not None:
+        trace += float(mean_dev @ np.linalg.solve(sigma, mean_dev))
     return float(-0.5 * n_obs * (p * np.log(2 * np.pi) + logdet + trace))
 
 
@@ -125,26 +130,41 @@ def baseline_chi_square(S: np.ndarray, n_obs: int) -> tuple[float, int]:
     return float(n_obs * (np.sum(np.log(np.diag(S))) - logdet)), p * (p - 1) // 2
 
 
-def fit_indices(S: np.ndarray, sigma: np.ndarray, discrepancy: float, n_obs: int, n_free: int) -> FitIndices:
-    p = S.shape[0]
-    df = p * (p + 1) // 2 - n_free
+def fit_indices(groups: list[tuple[np.ndarray, np.ndarray, int, np.ndarray | None]], discrepancy: float, n_free: int,
+                mean_structure: bool = False) -> FitIndices:
+    """Fit indices from each group's (S, Sigma, N_g, m - mu or None) and the minimised discrepancy."""
+    G = len(groups)
+    p = groups[0][0].shape[0]
+    n_obs = sum(g[2] for g in groups)
+    moments = G * (p * (p + 1) // 2 + (p if mean_structure else 0))
+    df = moments - n_free
     chi = float(n_obs * discrepancy)
-    base_chi, base_df = baseline_chi_square(S, n_obs)
-    loglik = normal_log_likelihood(S, sigma, n_obs)
+    base_chi = 0.0
+    base_df = 0
+    loglik = 0.0
+    srmr = 0.0
+    for S, sigma, n, dev in groups:
+        c, d = baseline_chi_square(S, n)
+        base_chi += c
+        base_df += d
+        loglik += normal_log_likelihood(S, sigma, n, dev if mean_structure else None)
+        srmr += n / n_obs * srmr_value(S, sigma)
+    rmsea = rmsea_value(chi, df, n_obs) * np.sqrt(G)
+    low, high = rmsea_interval(chi, df, n_obs)
     return FitIndices(
         chi_square=chi,
         df=df,
         p_value=chi_square_p(chi, df),
         cfi=cfi_value(chi, df, base_chi, base_df),
         tli=tli_value(chi, df, base_chi, base_df),
-        rmsea=rmsea_value(chi, df, n_obs),
-        rmsea_ci90=rmsea_interval(chi, df, n_obs),
-        rmsea_p_close=rmsea_close_fit_p(chi, df, n_obs),
-        srmr=srmr_value(S, sigma),
+        rmsea=float(rmsea),
+        rmsea_ci90=(float(low * np.sqrt(G)), float(high * np.sqrt(G))),
+        rmsea_p_close=rmsea_close_fit_p(chi, df, n_obs, close=0.05 / np.sqrt(G)),
+        srmr=float(srmr),
         log_likelihood=loglik,
         aic=-2 * loglik + 2 * n_free,
-        bic=-2 * loglik + n_free * np.log(n_obs),
-        sabic=-2 * loglik + n_free * np.log((n_obs + 2) / 24.0),
+        bic=float(-2 * loglik + n_free * np.log(n_obs)),
+        sabic=float(-2 * loglik + n_free * np.log((n_obs + 2) / 24.0)),
         baseline_chi_square=base_chi,
         baseline_df=base_df,
         n_free_parameters=n_free,

@@ -12,28 +12,38 @@ from cfa_tool.model.parameters import ParameterTable
 
 
 def check_counting_rule(spec: Spec, table: ParameterTable) -> None:
-    p = table.p
-    moments = p * (p + 1) // 2
+    p, G = table.p, table.n_groups
+    moments = G * (p * (p + 1) // 2 + (p if table.mean_structure else 0))
     if table.n_free > moments:
+        what = "variances and covariances" + (" and means" if table.mean_structure else "")
+        per = f" in {G} groups" if G > 1 else ""
         raise ModelError(
-            f"the model has {table.n_free} free parameters but {p} indicators give only {moments} variances and "
-            f"covariances, so it cannot be identified (degrees of freedom {moments - table.n_free}); add constraints or indicators",
+            f"the model has {table.n_free} free parameters but {p} indicators{per} give only {moments} {what}, "
+            f"so it cannot be identified (degrees of freedom {moments - table.n_free}); add constraints or indicators",
             spec.factors[0].name.location,
             spec.source_line(spec.factors[0].name.location),
         )
-    for j, factor in enumerate(table.latent):
-        scaled = any(
-            (par.matrix in ("L", "B") and par.col == j and (not par.free and par.offset != 0.0 or par.origin == "scale"))
-            or (par.matrix == "P" and par.row == j and par.col == j and not par.free)
-            for par in table.parameters
-        )
-        if not scaled:
-            loc = next(f.name.location for f in spec.factors if f.name.text == factor)
-            raise ModelError(
-                f"factor '{factor}' has no scale: fix one of its loadings or its variance (or use 'scale {factor} by ...')",
-                loc,
-                spec.source_line(loc),
-            )
+    for g in range(G):
+        own = [par for par in table.parameters if par.group == g]
+        for j, factor in enumerate(table.latent):
+            scaled = any(
+                (par.matrix in ("L", "B") and par.col == j and (not par.free and par.offset != 0.0 or par.origin == "scale"))
+                or (par.matrix == "P" and par.row == j and par.col == j and not par.free)
+                for par in own
+            ) or (g > 0 and _scale_shared_with_first_group(table, j, g))
+            if not scaled:
+                loc = next(f.name.location for f in spec.factors if f.name.text == factor)
+                raise ModelError(
+                    f"factor '{factor}' has no scale: fix one of its loadings or its variance (or use 'scale {factor} by ...')",
+                    loc,
+                    spec.source_line(loc),
+                )
+
+
+def _scale_shared_with_first_group(table: ParameterTable, j: int, g: int) -> bool:
+    """A later group's factor takes its scale from the first group through a loading held equal across groups."""
+    first = {par.terms for par in table.parameters if par.group == 0 and par.matrix in ("L", "B") and par.col == j and par.free}
+    return any(par.terms in first for par in table.parameters if par.group == g and par.matrix in ("L", "B") and par.col == j and par.free)
 
 
 def check_information_rank(information: np.ndarray, labels: tuple[str, ...]) -> None:

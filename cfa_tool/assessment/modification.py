@@ -1,13 +1,17 @@
-"""Modification indices and expected parameter changes for fixed-at-zero parameters.
+"""Score tests: modification indices for fixed-at-zero parameters, and for
+equality constraints across groups.
 
-For a parameter gamma fixed at zero, with d = dF/dgamma at the estimates and
-H the expected second derivatives of F, the score (Lagrange multiplier) test is
+For a parameter gamma not free in the model, with d = dF/dgamma at the
+estimates and H the expected second derivatives of F,
 
     MI = (N/2) d^2 / h,   h = H_gg - H_gt H_tt^-1 H_tg          (Sorbom 1989)
 
 and the expected parameter change is EPC = -d / h (Saris, Satorra & Sorbom
-1987), shown also fully standardized.  Candidates: cross-loadings,
-residual covariances between indicators, and factor covariances fixed at zero.
+1987), shown also fully standardized.  Candidates: cross-loadings, residual
+covariances between indicators, factor covariances fixed at zero, and (for
+invariance) each group's copy of a parameter held equal across groups; for
+the latter, gamma is a deviation of that group's value from the common one
+(the univariate score test of an equality constraint; Sorbom 1989).
 """
 
 from __future__ import annotations
@@ -15,11 +19,11 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.linalg import cho_factor, cho_solve
+from scipy.linalg import cho_factor, cho_solve, solve_triangular
 
 from cfa_tool.assessment.standardized import standardize_entries
 from cfa_tool.estimation.linalg import scaled_solve
-from cfa_tool.estimation.ml import whiten
+from cfa_tool.estimation.ml import NormalLikelihood, whiten
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable
 
@@ -31,24 +35,30 @@ class ModificationIndex:
     index: float
     expected_change: float
     standardized_expected_change: float
+    group: str | None = None
 
     def to_dict(self) -> dict:
         return {
             "kind": self.kind,
             "variables": list(self.variables),
+            "group": self.group,
             "index": self.index,
             "expected_change": self.expected_change,
             "standardized_expected_change": self.standardized_expected_change,
         }
 
 
-def candidate_entries(table: ParameterTable, exogenous: tuple[str, ...]) -> list[tuple[str, tuple[str, ...], str, int, int]]:
-    """(kind, variables, matrix, row, col) of every zero parameter that could be freed."""
-    present = {(p.matrix, p.row, p.col) for p in table.parameters if p.free or p.offset != 0.0}
-    out = []
+Candidate = tuple[str, tuple[str, ...], str, int, int]  # kind, variables, matrix, row, col
+
+
+def candidate_entries(table: ParameterTable, exogenous: tuple[str, ...], group: int = 0) -> list[Candidate]:
+    """Every zero parameter of one group that could be freed."""
+    own = [p for p in table.parameters if p.group == group]
+    present = {(p.matrix, p.row, p.col) for p in own if p.free or p.offset != 0.0}
+    out: list[Candidate] = []
     lat, obs = table.latent, table.observed
-    below = {p.variables[1] for p in table.parameters if p.matrix == "B"}
-    first_order = [j for j, f in enumerate(lat) if any(p.matrix == "L" and p.col == j for p in table.parameters)]
+    below = {p.variables[1] for p in own if p.matrix == "B"}
+    first_order = [j for j, f in enumerate(lat) if any(p.matrix == "L" and p.col == j for p in own)]
     for i, x in enumerate(obs):
         for j in first_order:
             if ("L", i, j) not in present:
@@ -66,38 +76,81 @@ def candidate_entries(table: ParameterTable, exogenous: tuple[str, ...]) -> list
     return out
 
 
-def modification_indices(model: StructuredModel, theta: np.ndarray, S: np.ndarray, n_obs: int,
-                         exogenous: tuple[str, ...]) -> list[ModificationIndex]:
-    table = model.table
-    candidates = candidate_entries(table, exogenous)
-    if not candidates:
-        return []
-    mats = model.matrices(theta)
-    sigma = mats.implied_covariance()
-    chol, _ = cho_factor(sigma, lower=True)
-    sigma_inv = cho_solve((chol, True), np.eye(len(sigma)))
-    M = sigma_inv @ (sigma - S) @ sigma_inv
-    codes = np.array([MATRIX_CODES[c[2]] for c in candidates])
-    rows = np.array([c[3] for c in candidates])
-    cols = np.array([c[4] for c in candidates])
-    d_cand = entry_derivatives(mats, codes, rows, cols)
-    d_free = model.jacobian(theta)
-    X_c = whiten(chol, d_cand)
-    X_t = whiten(chol, d_free)
-    H_tt = X_t @ X_t.T
-    H_ct = X_c @ X_t.T
-    h_cc = np.einsum("ij,ij->i", X_c, X_c)
-    d = d_cand.reshape(len(candidates), -1) @ M.ravel()
-    h = h_cc - np.einsum("ij,ij->i", H_ct, scaled_solve(H_tt, H_ct.T).T)
-    ok = h > 1e-10 * np.maximum(h_cc, 1e-300)
-    mi = np.where(ok, 0.5 * n_obs * d**2 / np.where(ok, h, 1.0), np.nan)
-    epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
-    std_epc, _ = standardize_entries(mats, codes, rows, cols, epc)
-    out = [
-        ModificationIndex(kind, variables, float(mi[k]), float(epc[k]), float(std_epc[k]))
-        for k, (kind, variables, *_rest) in enumerate(candidates)
-        if ok[k]
+def constrained_entries(table: ParameterTable, kinds: tuple[str, ...], group: int) -> list[Candidate]:
+    """Entries of one group whose free parameter is shared with another group."""
+    groups_of_index: dict[int, set[int]] = {}
+    for par in table.parameters:
+        if len(par.terms) == 1:
+            groups_of_index.setdefault(par.terms[0][0], set()).add(par.group)
+    return [
+        (par.kind, par.variables, par.matrix, par.row, par.col)
+        for par in table.parameters
+        if par.group == group and par.kind in kinds and len(par.terms) == 1 and len(groups_of_index[par.terms[0][0]]) > 1
     ]
+
+
+def score_tests(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood,
+                candidates: list[list[Candidate]]) -> list[ModificationIndex]:
+    """MI and EPC for each group's candidate entries (``candidates[g]``)."""
+    table = model.table
+    q = len(theta)
+    H_tt = np.zeros((q, q))
+    parts = []
+    for g, weight in enumerate(likelihood.weights):
+        mats = model.matrices(theta, g)
+        sigma = mats.implied_covariance()
+        chol, _ = cho_factor(sigma, lower=True)
+        sigma_inv = cho_solve((chol, True), np.eye(len(sigma)))
+        moments = likelihood.groups[g]
+        dev = moments.mean - mats.implied_mean() if likelihood.means else np.zeros(len(sigma))
+        M = sigma_inv @ (sigma - moments.covariance - np.outer(dev, dev)) @ sigma_inv
+        t_sigma, t_mu = model.jacobian(theta, g)
+        X_t = whiten(chol, t_sigma)
+        W_t = solve_triangular(chol, t_mu.T, lower=True)
+        H_tt += weight * (X_t @ X_t.T + (2.0 * W_t.T @ W_t if likelihood.means else 0.0))
+        cands = candidates[g]
+        if not cands:
+            continue
+        codes = np.array([MATRIX_CODES[c[2]] for c in cands])
+        rows = np.array([c[3] for c in cands])
+        cols = np.array([c[4] for c in cands])
+        c_sigma, c_mu = entry_derivatives(mats, codes, rows, cols)
+        X_c = whiten(chol, c_sigma)
+        H_ct = X_c @ X_t.T
+        h_cc = np.einsum("ij,ij->i", X_c, X_c)
+        d = c_sigma.reshape(len(cands), -1) @ M.ravel()
+        if likelihood.means:
+            W_c = solve_triangular(chol, c_mu.T, lower=True)
+            H_ct = H_ct + 2.0 * W_c.T @ W_t
+            h_cc = h_cc + 2.0 * np.einsum("ij,ij->j", W_c, W_c)
+            d = d - 2.0 * c_mu @ (sigma_inv @ dev)
+        parts.append((g, cands, codes, rows, cols, mats, weight * d, weight * H_ct, weight * h_cc))
+    out: list[ModificationIndex] = []
+    n = likelihood.n_total
+    for g, cands, codes, rows, cols, mats, d, H_ct, h_cc in parts:
+        h = h_cc - np.einsum("ij,ij->i", H_ct, scaled_solve(H_tt, H_ct.T).T)
+        ok = h > 1e-10 * np.maximum(h_cc, 1e-300)
+        mi = np.where(ok, 0.5 * n * d**2 / np.where(ok, h, 1.0), np.nan)
+        epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
+        std_epc, _ = standardize_entries(mats, codes, rows, cols, epc)
+        label = table.groups[g] if table.mean_structure else None
+        out.extend(
+            ModificationIndex(kind, variables, float(mi[k]), float(epc[k]), float(std_epc[k]), label)
+            for k, (kind, variables, *_rest) in enumerate(cands)
+            if ok[k]
+        )
     out.sort(key=lambda r: -r.index)
     return out
 
+
+def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood,
+                         exogenous: tuple[str, ...]) -> list[ModificationIndex]:
+    table = model.table
+    return score_tests(model, theta, likelihood, [candidate_entries(table, exogenous, g) for g in range(table.n_groups)])
+
+
+def equality_score_tests(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood,
+                         kinds: tuple[str, ...]) -> list[ModificationIndex]:
+    """Score tests for releasing each cross-group equality of the given kinds, per group."""
+    table = model.table
+    return score_tests(model, theta, likelihood, [constrained_entries(table, kinds, g) for g in range(table.n_groups)])

@@ -30,6 +30,11 @@ def standardize_entries(mats: ModelMatrices, codes: np.ndarray, rows: np.ndarray
             lat[e] = full[e] = v * latent_sd[c] / latent_sd[r]
         elif code == 2:
             lat[e] = full[e] = v / (latent_sd[r] * latent_sd[c])
+        elif code == 4:  # intercept of observed r
+            lat[e] = v
+            full[e] = v / obs_sd[r]
+        elif code == 5:  # mean of factor r
+            lat[e] = full[e] = v / latent_sd[r]
         else:
             lat[e] = v
             if r == c:

@@ -37,19 +37,40 @@ def log_det_pd(matrix: np.ndarray) -> float | None:
     return 2.0 * float(np.sum(np.log(d)))
 
 
+@dataclass(frozen=True)
+class GroupMoments:
+    """Sample moments of one group: covariance (divisor N), mean vector, size."""
+
+    covariance: np.ndarray
+    mean: np.ndarray
+    n_obs: int
+
+
 class NormalLikelihood:
-    """The ML discrepancy for one sample covariance matrix S (divisor N)."""
+    """The ML discrepancy summed over groups, weighted by group size.
 
-    def __init__(self, model: StructuredModel, S: np.ndarray):
+    F = sum_g (N_g / N) [log|Sigma_g| + tr(S_g Sigma_g^-1) - log|S_g| - p + d_g' Sigma_g^-1 d_g]
+    with d_g = m_g - mu_g when the model has a mean structure (Sorbom 1974), so
+    that N F is the likelihood-ratio chi-square against the saturated model.
+    """
+
+    def __init__(self, model: StructuredModel, groups: list[GroupMoments]):
         self.model = model
-        self.S = S
-        logdet = log_det_pd(S)
-        if logdet is None:
-            raise ValueError("sample covariance matrix is not positive definite")
-        self.logdet_S = logdet
-        self.p = S.shape[0]
+        self.groups = groups
+        self.n_total = sum(g.n_obs for g in groups)
+        self.weights = [g.n_obs / self.n_total for g in groups]
+        self.p = model.p
+        self.means = model.mean_structure
+        self.logdet_S = []
+        for g in groups:
+            logdet = log_det_pd(g.covariance)
+            if logdet is None:
+                raise ValueError("sample covariance matrix is not positive definite")
+            self.logdet_S.append(logdet)
 
-    def discrepancy_of(self, sigma: np.ndarray) -> float:
+    def group_discrepancy(self, theta: np.ndarray, g: int) -> float:
+        mats = self.model.matrices(theta, g)
+        sigma = mats.implied_covariance()
         try:
             c = cho_factor(sigma, lower=True, check_finite=False)
         except np.linalg.LinAlgError:
@@ -57,29 +78,50 @@ class NormalLikelihood:
         d = np.diag(c[0])
         if np.any(d <= 0) or not np.all(np.isfinite(d)):
             return np.inf
-        logdet = 2.0 * float(np.sum(np.log(d)))
-        trace = float(np.trace(cho_solve(c, self.S, check_finite=False)))
-        return logdet + trace - self.logdet_S - self.p
+        S = self.groups[g].covariance
+        value = 2.0 * float(np.sum(np.log(d))) + float(np.trace(cho_solve(c, S, check_finite=False))) - self.logdet_S[g] - self.p
+        if self.means:
+            dev = self.groups[g].mean - mats.implied_mean()
+            value += float(dev @ cho_solve(c, dev, check_finite=False))
+        return value
 
     def value(self, theta: np.ndarray) -> float:
-        return self.discrepancy_of(self.model.implied(theta))
+        return float(sum(w * self.group_discrepancy(theta, g) for g, w in enumerate(self.weights)))
 
     def evaluate(self, theta: np.ndarray) -> Evaluation | None:
-        """Value, gradient and expected information at theta (None if Sigma is not positive definite)."""
-        sigma = self.model.implied(theta)
-        try:
-            c = cho_factor(sigma, lower=True, check_finite=False)
-        except np.linalg.LinAlgError:
-            return None
-        if np.any(np.diag(c[0]) <= 0):
-            return None
-        sigma_inv = cho_solve(c, np.eye(self.p), check_finite=False)
-        value = 2.0 * float(np.sum(np.log(np.diag(c[0])))) + float(np.sum(sigma_inv * self.S)) - self.logdet_S - self.p
-        M = sigma_inv @ (sigma - self.S) @ sigma_inv
-        delta = self.model.jacobian(theta)
-        q = delta.shape[0]
-        gradient = delta.reshape(q, -1) @ M.ravel()
-        information = expected_information(c[0], delta)
+        """Value, gradient and expected information at theta (None if some Sigma is not positive definite)."""
+        q = len(theta)
+        value = 0.0
+        gradient = np.zeros(q)
+        information = np.zeros((q, q))
+        for g, w in enumerate(self.weights):
+            mats = self.model.matrices(theta, g)
+            sigma = mats.implied_covariance()
+            try:
+                c = cho_factor(sigma, lower=True, check_finite=False)
+            except np.linalg.LinAlgError:
+                return None
+            if np.any(np.diag(c[0]) <= 0) or not np.all(np.isfinite(c[0])):
+                return None
+            S = self.groups[g].covariance
+            sigma_inv = cho_solve(c, np.eye(self.p), check_finite=False)
+            f = 2.0 * float(np.sum(np.log(np.diag(c[0])))) + float(np.sum(sigma_inv * S)) - self.logdet_S[g] - self.p
+            target = S
+            d_sigma, d_mu = self.model.jacobian(theta, g)
+            if self.means:
+                dev = self.groups[g].mean - mats.implied_mean()
+                f += float(dev @ sigma_inv @ dev)
+                target = S + np.outer(dev, dev)
+            M = sigma_inv @ (sigma - target) @ sigma_inv
+            grad = d_sigma.reshape(q, -1) @ M.ravel()
+            info = expected_information(c[0], d_sigma)
+            if self.means:
+                grad -= 2.0 * d_mu @ (sigma_inv @ dev)
+                W = solve_triangular(c[0], d_mu.T, lower=True, check_finite=False)
+                info += 2.0 * W.T @ W
+            value += w * f
+            gradient += w * grad
+            information += w * info
         return Evaluation(value, gradient, information)
 
 

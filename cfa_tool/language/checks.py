@@ -32,6 +32,8 @@ def existing_parameters(spec: Spec) -> set[tuple]:
             keys.add(("loading", (factor.name.text, ind.text)))
     for name in spec.factor_names + spec.observed_names:
         keys.add(("variance", (name,)))
+    keys.update(("intercept", (x,)) for x in spec.observed_names)
+    keys.update(("mean", (f,)) for f in spec.factor_names)
     zero = {p.key() for p in spec.uncorrelated}
     exo = exogenous_factors(spec)
     for i, a in enumerate(exo):
@@ -125,7 +127,7 @@ def _check_pairs(spec: Spec) -> None:
             raise _fail(spec, f"'{pair.first}' and '{pair.second}' are declared both to covary and to be uncorrelated", pair.first.location)
 
 
-def _all_refs(spec: Spec) -> list[ParameterRef]:
+def all_refs(spec: Spec) -> list[ParameterRef]:
     refs: list[ParameterRef] = []
     for setting in spec.fixed + spec.starts:
         refs.extend(setting.refs)
@@ -134,6 +136,7 @@ def _all_refs(spec: Spec) -> list[ParameterRef]:
         refs.extend(group)
     for bound in spec.bounds:
         refs.extend(bound.refs)
+    refs.extend(spec.noninvariant)
     return refs
 
 
@@ -142,7 +145,7 @@ def _check_references(spec: Spec) -> None:
     known = set(_known_names(spec))
     latent = set(spec.factor_names)
     zero = {p.key() for p in spec.uncorrelated}
-    for ref in _all_refs(spec):
+    for ref in all_refs(spec):
         for name in ref.names:
             if name not in known:
                 raise _unknown_name(spec, name, ref.location)
@@ -160,33 +163,41 @@ def _check_references(spec: Spec) -> None:
             if ref.key()[1] in zero:
                 raise _fail(spec, f"{ref} is fixed at zero by 'uncorrelated'; remove that statement to set it", ref.location)
             raise _fail(spec, f"{ref} is not in the model; declare it with 'covary {a}, {b}' first", ref.location)
+        if ref.kind == "intercept":
+            raise _fail(spec, f"'{ref.names[0]}' is a factor: factors have means, not intercepts; write mean({ref.names[0]})", ref.location)
+        if ref.kind == "mean":
+            raise _fail(spec, f"'{ref.names[0]}' is an indicator: indicators have intercepts; write intercept({ref.names[0]})", ref.location)
         raise _fail(spec, f"{ref} is not a parameter of this model", ref.location)  # pragma: no cover
+
+
+def _gkey(ref: ParameterRef) -> tuple:
+    return (ref.group, ref.key())
 
 
 def _check_contradictions(spec: Spec) -> None:
     fixed: dict[tuple, tuple[float, ParameterRef]] = {}
     for setting in spec.fixed:
         for ref in setting.refs:
-            key = ref.key()
+            key = _gkey(ref)
             if key in fixed and fixed[key][0] != setting.value:
                 raise _fail(spec, f"{ref} is fixed to {setting.value:g} here but to {fixed[key][0]:g} on line {fixed[key][1].location.line}", ref.location)
             fixed[key] = (setting.value, ref)
     for ref in spec.freed:
-        if ref.key() in fixed:
-            raise _fail(spec, f"{ref} is both fixed (line {fixed[ref.key()][1].location.line}) and freed", ref.location)
+        if _gkey(ref) in fixed:
+            raise _fail(spec, f"{ref} is both fixed (line {fixed[_gkey(ref)][1].location.line}) and freed", ref.location)
     for setting in spec.starts:
         for ref in setting.refs:
-            if ref.key() in fixed:
+            if _gkey(ref) in fixed:
                 raise _fail(spec, f"{ref} is fixed, so a start value for it has no effect; remove one of the two", ref.location)
     for bound in spec.bounds:
         for ref in bound.refs:
-            if ref.key() in fixed:
+            if _gkey(ref) in fixed:
                 raise _fail(spec, f"{ref} is fixed, so a bound on it has no effect; remove one of the two", ref.location)
     lower: dict[tuple, float] = {}
     upper: dict[tuple, float] = {}
     for bound in spec.bounds:
         for ref in bound.refs:
-            key = ref.key()
+            key = _gkey(ref)
             if bound.lower is not None:
                 lower[key] = bound.lower
             if bound.upper is not None:
@@ -194,19 +205,21 @@ def _check_contradictions(spec: Spec) -> None:
             if key in lower and key in upper and lower[key] > upper[key]:
                 raise _fail(spec, f"the bounds on {ref} leave no room: at least {lower[key]:g} and at most {upper[key]:g}", ref.location)
     for group in spec.equal:
-        values = {fixed[r.key()][0] for r in group if r.key() in fixed}
+        values = {fixed[_gkey(r)][0] for r in group if _gkey(r) in fixed}
         if len(values) > 1:
             raise _fail(spec, f"these parameters are set equal but are fixed to different values ({', '.join(f'{v:g}' for v in sorted(values))})", group[0].location)
         kinds = {r.kind for r in group}
-        keys = [r.key() for r in group]
+        keys = [_gkey(r) for r in group]
         if len(set(keys)) < len(keys):
             raise _fail(spec, "'equal' names the same parameter twice", group[0].location)
         if len(kinds) > 1:
-            raise _fail(spec, "'equal' can only join parameters of one kind (all loadings, all variances or all covariances)", group[0].location)
+            raise _fail(spec, "'equal' can only join parameters of one kind (all loadings, all variances, ...)", group[0].location)
+        if len({r.group for r in group}) > 1:
+            raise _fail(spec, "'equal' within 'in group' applies to one group; to hold a parameter equal across groups use 'invariant'", group[0].location)
 
 
 def _check_indicator_counts(spec: Spec) -> None:
-    fixed_keys = {r.key() for s in spec.fixed for r in s.refs}
+    fixed_keys = {r.key() for s in spec.fixed for r in s.refs if r.group is None}
     constrained = fixed_keys | {r.key() for g in spec.equal for r in g}
     exo = exogenous_factors(spec)
     zero = {p.key() for p in spec.uncorrelated}

@@ -19,6 +19,7 @@ from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput
 
 from cfa_tool.errors import Location, ModelError
 from cfa_tool.language.spec import (
+    INVARIANCE_CLASSES,
     REFERENCE_KINDS,
     SCALING_METHODS,
     BoundSetting,
@@ -32,7 +33,8 @@ from cfa_tool.language.spec import (
 )
 from cfa_tool.resources import resource_dir
 
-STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale")
+STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale", "in",
+                   "invariant", "noninvariant")
 
 # Plain words for the grammar's terminals, used in "expected ..." messages.
 _TERMINAL_WORDS = {
@@ -156,6 +158,7 @@ def _or_list(words: list[str]) -> str:
 
 class _Builder:
     def __init__(self, source: str, text: str, lines: tuple[str, ...]):
+        self.group: str | None = None  # the group of the statement being built
         self.source = source
         self.text = text
         self.lines = lines
@@ -181,8 +184,15 @@ class _Builder:
         starts: list[ValueSetting] = []
         bounds: list[BoundSetting] = []
         scaling: list[ScaleSetting] = []
+        invariant: list[str] = []
+        noninvariant: list[ParameterRef] = []
         for stmt in tree.children:
             kind = stmt.data
+            self.group = None
+            if kind == "group_stmt":
+                group_name, stmt = stmt.children
+                self.group = self.name(group_name).text
+                kind = stmt.data
             if kind == "title_stmt":
                 if title is not None:
                     raise self.error("the model already has a name; give it once", stmt)
@@ -215,6 +225,16 @@ class _Builder:
                 bounds.append(BoundSetting(refs, lower, upper))
             elif kind == "scale_stmt":
                 scaling.append(self.scale(stmt))
+            elif kind == "invariant_stmt":
+                for word in self.name_list(stmt.children[0]):
+                    if word.text not in INVARIANCE_CLASSES:
+                        guess = difflib.get_close_matches(word.text, INVARIANCE_CLASSES, n=1)
+                        hint = f"did you mean '{guess[0]}'?" if guess else "use " + _or_list(list(INVARIANCE_CLASSES))
+                        raise self.error(f"'{word}' is not something that can be held equal across groups; {hint}", word.location)
+                    if word.text not in invariant:
+                        invariant.append(word.text)
+            elif kind == "noninvariant_stmt":
+                noninvariant.extend(self.refs(stmt.children[0]))
             else:  # pragma: no cover - grammar and builder out of step
                 raise self.error(f"statement '{kind}' is not handled", stmt)
         if not factors:
@@ -235,6 +255,8 @@ class _Builder:
             starts=tuple(starts),
             bounds=tuple(bounds),
             scaling=tuple(scaling),
+            invariant=tuple(invariant),
+            noninvariant=tuple(noninvariant),
             lines=self.lines,
         )
 
@@ -285,9 +307,10 @@ class _Builder:
             names = tuple(self.name(n).text for n in name_nodes)
             wanted = REFERENCE_KINDS[kind]
             if len(names) != wanted:
-                example = {"loading": "loading(factor, item)", "variance": "variance(name)", "covariance": "covariance(a, b)"}[kind]
+                example = {"loading": "loading(factor, item)", "variance": "variance(name)", "covariance": "covariance(a, b)",
+                           "intercept": "intercept(item)", "mean": "mean(factor)"}[kind]
                 raise self.error(f"'{kind}' takes {wanted} name{'s' if wanted > 1 else ''}, as in {example}", kind_token)
-            refs.append(ParameterRef(kind, names, self.loc(kind_token)))
+            refs.append(ParameterRef(kind, names, self.loc(kind_token), self.group))
         return tuple(refs)
 
     def number(self, token: Token) -> float:

@@ -12,7 +12,18 @@ from dataclasses import dataclass, field
 from cfa_tool.errors import Location
 
 #: Parameter kinds a reference may name, with the number of names each takes.
-REFERENCE_KINDS: dict[str, int] = {"loading": 2, "variance": 1, "covariance": 2}
+REFERENCE_KINDS: dict[str, int] = {"loading": 2, "variance": 1, "covariance": 2, "intercept": 1, "mean": 1}
+
+#: Classes of parameters that 'invariant' can hold equal across groups, with the
+#: parameter kinds each covers.
+INVARIANCE_CLASSES: dict[str, tuple[str, ...]] = {
+    "loadings": ("loading",),
+    "intercepts": ("intercept",),
+    "residuals": ("residual_variance", "residual_covariance"),
+    "variances": ("factor_variance",),
+    "covariances": ("factor_covariance",),
+    "means": ("mean",),
+}
 
 #: Ways to give a factor its scale.
 SCALING_METHODS = ("marker", "variance", "effects")
@@ -34,6 +45,7 @@ class ParameterRef:
     kind: str
     names: tuple[str, ...]
     location: Location
+    group: str | None = None  # set by 'in group NAME:'; None means every group
 
     def key(self) -> tuple:
         """Identity of the parameter, order-free for covariances."""
@@ -42,7 +54,8 @@ class ParameterRef:
         return (self.kind, self.names)
 
     def __str__(self) -> str:
-        return f"{self.kind}({', '.join(self.names)})"
+        text = f"{self.kind}({', '.join(self.names)})"
+        return f"{text} in group {self.group}" if self.group is not None else text
 
 
 @dataclass(frozen=True)
@@ -102,6 +115,8 @@ class Spec:
     starts: tuple[ValueSetting, ...] = ()
     bounds: tuple[BoundSetting, ...] = ()
     scaling: tuple[ScaleSetting, ...] = ()
+    invariant: tuple[str, ...] = ()
+    noninvariant: tuple[ParameterRef, ...] = ()
     lines: tuple[str, ...] = field(default=(), repr=False, compare=False)
 
     @property

@@ -1,13 +1,15 @@
-"""Implied covariance matrix and its analytic derivatives.
+"""Implied moments and their analytic derivatives.
 
-Sigma = G P G' + T with G = L A and A = (I - B)^-1 (see :mod:`parameters`).
-The derivative of Sigma with respect to one matrix entry is a rank-two
-update (Neudecker & Satorra 1991 give the general form):
+Sigma = G P G' + T and mu = N + G M, with G = L A and A = (I - B)^-1 (see
+:mod:`parameters`).  The derivative of Sigma with respect to one matrix entry
+is a rank-two update (Neudecker & Satorra 1991 give the general form), and
+that of mu a single vector:
 
-* L[i, j]:  e_i c_j' + c_j e_i'            with c_j = (A P G')[j, :]
-* B[i, j]:  g_i c_j' + c_j g_i'            with g_i = G[:, i]
-* P[i, j]:  g_i g_j' + g_j g_i' (i != j),  g_i g_i' (i == j)
-* T[i, j]:  E_ij + E_ji (i != j),          E_ii (i == j)
+* L[i, j]:  dSigma = e_i c_j' + c_j e_i',  dmu = e_i a_j      with c_j = (A P G')[j, :], a = A M
+* B[i, j]:  dSigma = g_i c_j' + c_j g_i',  dmu = g_i a_j      with g_i = G[:, i]
+* P[i, j]:  dSigma = g_i g_j' + g_j g_i' (i != j), g_i g_i' (i == j)
+* T[i, j]:  dSigma = E_ij + E_ji (i != j), E_ii (i == j)
+* N[i]:     dmu = e_i;     M[j]: dmu = g_j
 """
 
 from __future__ import annotations
@@ -25,6 +27,8 @@ class ModelMatrices:
     B: np.ndarray
     P: np.ndarray
     T: np.ndarray
+    N: np.ndarray
+    M: np.ndarray
 
     @property
     def A(self) -> np.ndarray:
@@ -38,13 +42,19 @@ class ModelMatrices:
         A = self.A
         return A @ self.P @ A.T
 
+    def latent_means(self) -> np.ndarray:
+        return self.A @ self.M
+
     def implied_covariance(self) -> np.ndarray:
         G = self.L @ self.A
         return G @ self.P @ G.T + self.T
 
+    def implied_mean(self) -> np.ndarray:
+        return self.N + self.L @ (self.A @ self.M)
+
 
 class StructuredModel:
-    """Maps theta to model matrices, the implied covariance and its derivatives.
+    """Maps theta to each group's matrices, implied moments and their derivatives.
 
     Holds only precomputed index arrays; every method is a pure function of theta.
     """
@@ -52,38 +62,58 @@ class StructuredModel:
     def __init__(self, table: ParameterTable):
         self.table = table
         self.p, self.m = table.p, table.m
-        self.codes, self.rows, self.cols = table.entry_arrays()
-        self.J, self.offset = table.mapping()
+        self.n_groups = table.n_groups
+        self.mean_structure = table.mean_structure
+        codes, rows, cols = table.entry_arrays()
+        groups = table.group_array()
+        J, offset = table.mapping()
+        self._codes, self._rows, self._cols = [], [], []
+        self._J, self._offset = [], []
+        for g in range(self.n_groups):
+            sel = groups == g
+            self._codes.append(codes[sel])
+            self._rows.append(rows[sel])
+            self._cols.append(cols[sel])
+            self._J.append(J[sel])
+            self._offset.append(offset[sel])
+        self.J, self.offset = J, offset
+        self.groups = groups
 
     # -- matrices
     def entry_values(self, theta: np.ndarray) -> np.ndarray:
+        """Values of all table entries (all groups), in table order."""
         return self.offset + self.J @ theta
 
-    def matrices(self, theta: np.ndarray) -> ModelMatrices:
-        values = self.entry_values(theta)
+    def matrices(self, theta: np.ndarray, group: int = 0) -> ModelMatrices:
+        values = self._offset[group] + self._J[group] @ theta
+        codes, rows, cols = self._codes[group], self._rows[group], self._cols[group]
         p, m = self.p, self.m
-        mats = [np.zeros((p, m)), np.zeros((m, m)), np.zeros((m, m)), np.zeros((p, p))]
+        mats = [np.zeros((p, m)), np.zeros((m, m)), np.zeros((m, m)), np.zeros((p, p)), np.zeros(p), np.zeros(m)]
         for code in range(4):
-            sel = self.codes == code
-            mats[code][self.rows[sel], self.cols[sel]] = values[sel]
+            sel = codes == code
+            mats[code][rows[sel], cols[sel]] = values[sel]
         for code in (2, 3):  # symmetric matrices stored as lower triangle
-            sel = (self.codes == code) & (self.rows != self.cols)
-            mats[code][self.cols[sel], self.rows[sel]] = values[sel]
+            sel = (codes == code) & (rows != cols)
+            mats[code][cols[sel], rows[sel]] = values[sel]
+        for code in (4, 5):
+            sel = codes == code
+            mats[code][rows[sel]] = values[sel]
         return ModelMatrices(*mats)
 
-    def implied(self, theta: np.ndarray) -> np.ndarray:
-        return self.matrices(theta).implied_covariance()
+    def implied(self, theta: np.ndarray, group: int = 0) -> np.ndarray:
+        return self.matrices(theta, group).implied_covariance()
 
     # -- derivatives
-    def jacobian(self, theta: np.ndarray) -> np.ndarray:
-        """d Sigma / d theta as an array of shape (q, p, p)."""
-        mats = self.matrices(theta)
-        d_entries = entry_derivatives(mats, self.codes, self.rows, self.cols)
-        return np.tensordot(self.J.T, d_entries, axes=1)
+    def jacobian(self, theta: np.ndarray, group: int = 0) -> tuple[np.ndarray, np.ndarray]:
+        """(d Sigma / d theta of shape (q, p, p), d mu / d theta of shape (q, p)) for one group."""
+        mats = self.matrices(theta, group)
+        d_sigma, d_mu = entry_derivatives(mats, self._codes[group], self._rows[group], self._cols[group])
+        Jt = self._J[group].T
+        return np.tensordot(Jt, d_sigma, axes=1), Jt @ d_mu
 
 
-def entry_derivatives(mats: ModelMatrices, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray) -> np.ndarray:
-    """d Sigma / d (matrix entry) for each listed entry, shape (E, p, p).
+def entry_derivatives(mats: ModelMatrices, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """d Sigma and d mu with respect to each listed matrix entry: shapes (E, p, p) and (E, p).
 
     Works for entries that are not parameters of the model too, which is what
     modification indices need.
@@ -92,10 +122,12 @@ def entry_derivatives(mats: ModelMatrices, codes: np.ndarray, rows: np.ndarray, 
     A = mats.A
     G = mats.L @ A
     C = A @ mats.P @ G.T  # m x p
-    out = np.zeros((len(codes), p, p))
-    idx = np.arange(len(codes))
-    # L and B: u c_j' + c_j u'
-    for code in (0, 1):
+    a = A @ mats.M
+    E = len(codes)
+    out = np.zeros((E, p, p))
+    d_mu = np.zeros((E, p))
+    idx = np.arange(E)
+    for code in (0, 1):  # L and B: u c_j' + c_j u'
         sel = codes == code
         if not sel.any():
             continue
@@ -104,10 +136,12 @@ def entry_derivatives(mats: ModelMatrices, codes: np.ndarray, rows: np.ndarray, 
         if code == 0:
             out[e, rows[sel], :] += cj
             out[e, :, rows[sel]] += cj
+            d_mu[e, rows[sel]] += a[cols[sel]]
         else:
             u = G[:, rows[sel]].T  # (k, p)
             outer = u[:, :, None] * cj[:, None, :]
             out[e] += outer + outer.transpose(0, 2, 1)
+            d_mu[e] += u * a[cols[sel]][:, None]
     sel = codes == 2
     if sel.any():
         e = idx[sel]
@@ -121,4 +155,10 @@ def entry_derivatives(mats: ModelMatrices, codes: np.ndarray, rows: np.ndarray, 
         out[e, rows[sel], cols[sel]] += 1.0
         off = rows[sel] != cols[sel]
         out[e[off], cols[sel][off], rows[sel][off]] += 1.0
-    return out
+    sel = codes == 4
+    if sel.any():
+        d_mu[idx[sel], rows[sel]] = 1.0
+    sel = codes == 5
+    if sel.any():
+        d_mu[idx[sel]] = G[:, rows[sel]].T
+    return out, d_mu

@@ -1,40 +1,43 @@
-"""Spec + observed-variable order -> parameter table.
+"""Spec (+ groups) -> parameter table.
 
-Matrices (the "all-latent" form of a confirmatory model, Bollen 1989, ch. 7):
+Matrices of each group (the "all-latent" form of a confirmatory model,
+Bollen 1989, ch. 7; Sorbom 1974 for the mean structure):
 
 * ``L`` (p x m): loadings of observed indicators on factors;
 * ``B`` (m x m): loadings of factors on higher-order factors (row = lower factor);
 * ``P`` (m x m, symmetric): factor variances and covariances (for a factor
   below a higher-order factor: its disturbance variance);
-* ``T`` (p x p, symmetric): residual (error) variances and covariances.
+* ``T`` (p x p, symmetric): residual (error) variances and covariances;
+* ``N`` (p): indicator intercepts and ``M`` (m): factor means, with groups only.
 
-Implied covariance: Sigma = L A P A' L' + T with A = (I - B)^-1.
+Implied moments: Sigma = L A P A' L' + T and mu = N + L A M, A = (I - B)^-1.
 
-Each matrix entry in the table is an affine function of the free-parameter
-vector theta: ``value = offset + sum(coef * theta[index])``.  Plain free
-parameters have one coefficient 1, equal parameters share an index, fixed
-parameters have none, and effects coding writes one loading as
+Each matrix entry is an affine function of the free-parameter vector theta:
+``value = offset + sum(coef * theta[index])``.  Plain free parameters have one
+coefficient 1, equal parameters (within or across groups) share an index,
+fixed parameters have none, and effects coding writes one loading as
 ``n - sum(other loadings)`` (Little, Slegers & Card 2006).
 """
 
 from __future__ import annotations
 
+import difflib
 from dataclasses import dataclass
 
 import numpy as np
 
 from cfa_tool.errors import ModelError
-from cfa_tool.language.checks import exogenous_factors
-from cfa_tool.language.spec import Spec
+from cfa_tool.language.checks import all_refs, exogenous_factors
+from cfa_tool.language.spec import INVARIANCE_CLASSES, ParameterRef, Spec
 
-MATRIX_CODES = {"L": 0, "B": 1, "P": 2, "T": 3}
+MATRIX_CODES = {"L": 0, "B": 1, "P": 2, "T": 3, "N": 4, "M": 5}
 
 
 @dataclass(frozen=True)
 class Parameter:
-    """One model-matrix entry."""
+    """One model-matrix entry of one group."""
 
-    kind: str  # loading, factor_variance, factor_covariance, residual_variance, residual_covariance
+    kind: str  # loading, factor_variance, factor_covariance, residual_variance, residual_covariance, intercept, mean
     variables: tuple[str, ...]
     matrix: str
     row: int
@@ -42,6 +45,7 @@ class Parameter:
     terms: tuple[tuple[int, float], ...]  # (index into theta, coefficient)
     offset: float
     origin: str  # "default", "user", "scale" (fixed or tied to give a factor its scale)
+    group: int = 0
 
     @property
     def free(self) -> bool:
@@ -58,10 +62,12 @@ class ParameterTable:
     latent: tuple[str, ...]
     parameters: tuple[Parameter, ...]
     n_free: int
-    start: np.ndarray  # theta start values (may be NaN where the start finder decides)
+    start: np.ndarray  # theta start values (NaN where the start finder decides)
     lower: np.ndarray
     upper: np.ndarray
     free_labels: tuple[str, ...]  # one label per theta element (its first parameter)
+    groups: tuple[str, ...] = ("",)
+    mean_structure: bool = False
 
     @property
     def p(self) -> int:
@@ -71,12 +77,19 @@ class ParameterTable:
     def m(self) -> int:
         return len(self.latent)
 
+    @property
+    def n_groups(self) -> int:
+        return len(self.groups)
+
     def entry_arrays(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """(matrix code, row, col) arrays for all parameters."""
         codes = np.array([MATRIX_CODES[p.matrix] for p in self.parameters], dtype=int)
         rows = np.array([p.row for p in self.parameters], dtype=int)
         cols = np.array([p.col for p in self.parameters], dtype=int)
         return codes, rows, cols
+
+    def group_array(self) -> np.ndarray:
+        return np.array([p.group for p in self.parameters], dtype=int)
 
     def mapping(self) -> tuple[np.ndarray, np.ndarray]:
         """(J, offset) with entries = offset + J @ theta."""
@@ -89,88 +102,141 @@ class ParameterTable:
         return J, offset
 
 
-def _kind_for(matrix: str, row_name: str, col_name: str) -> str:
-    if matrix in ("L", "B"):
-        return "loading"
-    if matrix == "P":
-        return "factor_variance" if row_name == col_name else "factor_covariance"
-    return "residual_variance" if row_name == col_name else "residual_covariance"
+def _kind_for(matrix: str, same: bool) -> str:
+    return {
+        "L": "loading",
+        "B": "loading",
+        "P": "factor_variance" if same else "factor_covariance",
+        "T": "residual_variance" if same else "residual_covariance",
+        "N": "intercept",
+        "M": "mean",
+    }[matrix]
 
 
-def build_parameter_table(spec: Spec) -> ParameterTable:
-    """Lay out the matrices and decide which entries are free, fixed or tied."""
+def _fail(spec: Spec, message: str, ref_or_loc) -> ModelError:
+    loc = getattr(ref_or_loc, "location", ref_or_loc)
+    return ModelError(message, loc, spec.source_line(loc))
+
+
+def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None) -> ParameterTable:
+    """Lay out the matrices and decide which entries are free, fixed or tied.
+
+    ``groups``: group labels for a multi-group model (with a mean structure);
+    None for one group without means.
+    """
+    multi = groups is not None
+    group_labels = tuple(groups) if multi else ("",)
+    G = len(group_labels)
     latent = spec.factor_names
     observed = spec.observed_names
     lat_ix = {n: i for i, n in enumerate(latent)}
     obs_ix = {n: i for i, n in enumerate(observed)}
+    exo = exogenous_factors(spec)
+    _check_group_use(spec, group_labels, multi)
 
-    # --- every entry the model has, keyed like ParameterRef.key()
+    # ---- every entry of every group, keyed (group, kind, names)
     entries: dict[tuple, dict] = {}
 
-    def add(key: tuple, matrix: str, row: int, col: int, variables: tuple[str, ...]) -> None:
-        entries[key] = dict(matrix=matrix, row=row, col=col, variables=variables, fixed=None, origin="default")
+    def add(g: int, key: tuple, matrix: str, row: int, col: int, variables: tuple[str, ...]) -> None:
+        entries[(g, *key)] = dict(matrix=matrix, row=row, col=col, variables=variables, fixed=None, origin="default")
 
-    for factor in spec.factors:
-        f = factor.name.text
-        for ind in factor.indicators:
-            x = ind.text
-            if x in lat_ix:
-                add(("loading", (f, x)), "B", lat_ix[x], lat_ix[f], (f, x))
-            else:
-                add(("loading", (f, x)), "L", obs_ix[x], lat_ix[f], (f, x))
-    for f in latent:
-        add(("variance", (f,)), "P", lat_ix[f], lat_ix[f], (f,))
-    for x in observed:
-        add(("variance", (x,)), "T", obs_ix[x], obs_ix[x], (x,))
-    exo = exogenous_factors(spec)
     zero = {p.key() for p in spec.uncorrelated}
-    for i, a in enumerate(exo):
-        for b in exo[i + 1 :]:
-            pair = tuple(sorted((a, b)))
-            if pair not in zero:
-                add(("covariance", pair), "P", lat_ix[pair[1]], lat_ix[pair[0]], (a, b))
-    for pair in spec.covary:
-        a, b = pair.first.text, pair.second.text
-        key = ("covariance", pair.key())
-        if key in entries:
-            continue
-        if a in lat_ix:
-            add(key, "P", max(lat_ix[a], lat_ix[b]), min(lat_ix[a], lat_ix[b]), (a, b))
-        else:
-            add(key, "T", max(obs_ix[a], obs_ix[b]), min(obs_ix[a], obs_ix[b]), (a, b))
+    for g in range(G):
+        for factor in spec.factors:
+            f = factor.name.text
+            for ind in factor.indicators:
+                x = ind.text
+                if x in lat_ix:
+                    add(g, ("loading", (f, x)), "B", lat_ix[x], lat_ix[f], (f, x))
+                else:
+                    add(g, ("loading", (f, x)), "L", obs_ix[x], lat_ix[f], (f, x))
+        for f in latent:
+            add(g, ("variance", (f,)), "P", lat_ix[f], lat_ix[f], (f,))
+        for x in observed:
+            add(g, ("variance", (x,)), "T", obs_ix[x], obs_ix[x], (x,))
+        for i, a in enumerate(exo):
+            for b in exo[i + 1 :]:
+                pair = tuple(sorted((a, b)))
+                if pair not in zero:
+                    add(g, ("covariance", pair), "P", lat_ix[pair[1]], lat_ix[pair[0]], (a, b))
+        for pair in spec.covary:
+            a, b = pair.first.text, pair.second.text
+            if (g, "covariance", pair.key()) in entries:
+                continue
+            ix = lat_ix if a in lat_ix else obs_ix
+            add(g, ("covariance", pair.key()), "P" if a in lat_ix else "T", max(ix[a], ix[b]), min(ix[a], ix[b]), (a, b))
+        if multi:
+            for x in observed:
+                add(g, ("intercept", (x,)), "N", obs_ix[x], 0, (x,))
+            for f in latent:
+                add(g, ("mean", (f,)), "M", lat_ix[f], 0, (f,))
+                entries[(g, "mean", (f,))].update(fixed=0.0)
 
-    # --- the user's fixes, then the automatic scale of each factor
-    for setting in spec.fixed:
-        for ref in setting.refs:
-            entries[ref.key()]["fixed"] = setting.value
-            entries[ref.key()]["origin"] = "user"
-    freed = {r.key() for r in spec.freed}
+    def groups_of(ref: ParameterRef) -> range | list[int]:
+        return range(G) if ref.group is None else [group_labels.index(ref.group)]
+
+    def refs_in_order(refs):
+        # settings for every group first, then group-specific ones, which override them
+        return sorted(refs, key=lambda r: r.group is not None)
+
+    # ---- the user's fixes and frees
+    freed: set[tuple] = set()
+    for ref in refs_in_order(spec.freed):
+        for g in groups_of(ref):
+            freed.add((g, *ref.key()))
+            if entries[(g, *ref.key())]["fixed"] is not None and ref.kind == "mean":
+                entries[(g, *ref.key())].update(fixed=None, origin="user")
+    fixed_settings = [(ref, s.value) for s in spec.fixed for ref in s.refs]
+    for ref, value in sorted(fixed_settings, key=lambda rv: rv[0].group is not None):
+        for g in groups_of(ref):
+            entries[(g, *ref.key())].update(fixed=value, origin="user")
+
+    invariant = _invariant_kinds(spec)
+    exceptions = {r.key() for r in spec.noninvariant}
+
+    def tied_across_groups(kind_key: tuple) -> bool:
+        kind, names = kind_key
+        return multi and G > 1 and _entry_kind(entries[(0, *kind_key)]) in invariant and kind_key not in exceptions
+
+    # ---- the automatic scale of each factor in each group
     effects: dict[tuple, list[tuple]] = {}  # the tied loading -> the other loadings of its factor
-    for factor in spec.factors:
-        f = factor.name.text
-        load_keys = [("loading", (f, ind.text)) for ind in factor.indicators]
-        var_key = ("variance", (f,))
-        user_scaled = entries[var_key]["origin"] == "user" or any(entries[k]["origin"] == "user" for k in load_keys)
-        if user_scaled:
-            continue
-        method = spec.scaling_of(f)
-        if method == "marker":
-            candidates = [k for k in load_keys if k not in freed]
-            if not candidates:
-                raise _scale_error(spec, f, "every loading of it is freed, so no indicator can set its scale")
-            entries[candidates[0]].update(fixed=1.0, origin="scale")
-        elif method == "variance":
-            if var_key in freed:
-                raise _scale_error(spec, f, "its variance is freed but 'scale ... by variance' fixes it")
-            # for a factor below a higher-order factor this fixes its disturbance variance
-            entries[var_key].update(fixed=1.0, origin="scale")
-        else:  # effects coding: loadings average 1
-            if len(load_keys) < 2:
-                raise _scale_error(spec, f, "effects coding needs at least two indicators")
-            effects[load_keys[-1]] = load_keys[:-1]
-            entries[load_keys[-1]]["origin"] = "scale"
+    for g in range(G):
+        for factor in spec.factors:
+            f = factor.name.text
+            load_keys = [(g, "loading", (f, ind.text)) for ind in factor.indicators]
+            var_key = (g, "variance", (f,))
+            if entries[var_key]["origin"] == "user" or any(entries[k]["origin"] == "user" for k in load_keys):
+                continue
+            method = spec.scaling_of(f)
+            if method == "marker":
+                candidates = [k for k in load_keys if k not in freed]
+                if not candidates:
+                    raise _scale_error(spec, f, "every loading of it is freed, so no indicator can set its scale")
+                entries[candidates[0]].update(fixed=1.0, origin="scale")
+            elif method == "variance":
+                if var_key in freed:
+                    raise _scale_error(spec, f, "its variance is freed but 'scale ... by variance' fixes it")
+                # with loadings held equal across groups, only the first group's variance sets the scale
+                if g == 0 or not any(tied_across_groups(k[1:]) for k in load_keys):
+                    entries[var_key].update(fixed=1.0, origin="scale")
+            else:  # effects coding: loadings average 1
+                if multi:
+                    raise _scale_error(spec, f, "effects coding is not available with groups; use marker or variance scaling")
+                if len(load_keys) < 2:
+                    raise _scale_error(spec, f, "effects coding needs at least two indicators")
+                effects[load_keys[-1]] = load_keys[:-1]
+                entries[load_keys[-1]]["origin"] = "scale"
+        # factor means: free outside the first group where the intercepts of their indicators are held equal
+        if multi and g > 0:
+            for factor in spec.factors:
+                f = factor.name.text
+                key = (g, "mean", (f,))
+                if entries[key]["origin"] == "user":
+                    continue
+                if _mean_identified(spec, factor, entries, tied_across_groups, lat_ix):
+                    entries[key].update(fixed=None, origin="default")
 
-    # --- free indices: equality groups share one index (union-find)
+    # ---- free indices: equal parameters share one index (union-find)
     parent: dict[tuple, tuple] = {}
 
     def find(k: tuple) -> tuple:
@@ -178,11 +244,23 @@ def build_parameter_table(spec: Spec) -> ParameterTable:
             k = parent[k]
         return k
 
+    def union(a: tuple, b: tuple) -> None:
+        ra, rb = find(a), find(b)
+        if ra != rb:
+            parent[rb] = ra
+
     for group in spec.equal:
-        keys = [r.key() for r in group]
-        for k in keys[1:]:
-            parent[find(k)] = find(keys[0])
-    # a group with a fixed member is fixed at that value
+        for g in groups_of(group[0]):
+            keys = [(g, *r.key()) for r in group]
+            for k in keys[1:]:
+                union(keys[0], k)
+    if multi:
+        for key in entries:
+            if key[0] > 0 and tied_across_groups(key[1:]):
+                first = (0, *key[1:])
+                if entries[key]["fixed"] is None and entries[first]["fixed"] is None:
+                    union(first, key)
+
     group_fixed: dict[tuple, float] = {}
     for key, e in entries.items():
         if e["fixed"] is not None:
@@ -191,40 +269,49 @@ def build_parameter_table(spec: Spec) -> ParameterTable:
         root = find(key)
         if root in group_fixed and entries[key]["fixed"] is None:
             if key in effects:
-                raise _scale_error(spec, key[1][0], "a loading tied by effects coding cannot also be set equal to a fixed parameter")
+                raise _scale_error(spec, key[2][0], "a loading tied by effects coding cannot also be set equal to a fixed parameter")
             entries[key]["fixed"] = group_fixed[root]
             entries[key]["origin"] = "user"
 
+    order = sorted(entries, key=lambda k: _sort_key(k, entries[k]))
     index_of_root: dict[tuple, int] = {}
     free_labels: list[str] = []
-    order = sorted(entries, key=lambda k: _sort_key(k, entries[k]))
     for key in order:
-        e = entries[key]
-        if e["fixed"] is not None or key in effects:
+        if entries[key]["fixed"] is not None or key in effects:
             continue
         root = find(key)
         if root not in index_of_root:
             index_of_root[root] = len(index_of_root)
-            free_labels.append(_label(key))
+            free_labels.append(_label(key, group_labels if multi else None))
     n_free = len(index_of_root)
 
-    starts: dict[int, float] = {}
+    def free_index(ref: ParameterRef, g: int) -> int | None:
+        key = (g, *ref.key())
+        if key in effects or entries[key]["fixed"] is not None:
+            return None
+        return index_of_root[find(key)]
+
+    start = np.full(n_free, np.nan)
     for setting in spec.starts:
-        for ref in setting.refs:
-            if ref.key() in effects:
-                continue
-            starts[index_of_root[find(ref.key())]] = setting.value
+        for ref in refs_in_order(setting.refs):
+            for g in groups_of(ref):
+                k = free_index(ref, g)
+                if k is not None:
+                    start[k] = setting.value
     lower = np.full(n_free, -np.inf)
     upper = np.full(n_free, np.inf)
     for bound in spec.bounds:
         for ref in bound.refs:
-            if ref.key() in effects:
-                raise ModelError(f"{ref} is tied by effects coding and cannot carry its own bound", ref.location, spec.source_line(ref.location))
-            k = index_of_root[find(ref.key())]
-            if bound.lower is not None:
-                lower[k] = max(lower[k], bound.lower)
-            if bound.upper is not None:
-                upper[k] = min(upper[k], bound.upper)
+            for g in groups_of(ref):
+                if (g, *ref.key()) in effects:
+                    raise _fail(spec, f"{ref} is tied by effects coding and cannot carry its own bound", ref)
+                k = free_index(ref, g)
+                if k is None:
+                    continue
+                if bound.lower is not None:
+                    lower[k] = max(lower[k], bound.lower)
+                if bound.upper is not None:
+                    upper[k] = min(upper[k], bound.upper)
 
     parameters = []
     for key in order:
@@ -237,12 +324,9 @@ def build_parameter_table(spec: Spec) -> ParameterTable:
             terms, offset = (), float(e["fixed"])
         else:
             terms, offset = ((index_of_root[find(key)], 1.0),), 0.0
-        names = (latent if e["matrix"] in ("B", "P") else observed)
-        row_name = names[e["row"]]
-        col_name = (latent if e["matrix"] in ("L", "B", "P") else observed)[e["col"]]
         parameters.append(
             Parameter(
-                kind=_kind_for(e["matrix"], row_name, col_name),
+                kind=_kind_for(e["matrix"], e["row"] == e["col"]),
                 variables=e["variables"],
                 matrix=e["matrix"],
                 row=e["row"],
@@ -250,12 +334,51 @@ def build_parameter_table(spec: Spec) -> ParameterTable:
                 terms=terms,
                 offset=offset,
                 origin=e["origin"],
+                group=key[0],
             )
         )
-    start = np.full(n_free, np.nan)
-    for k, v in starts.items():
-        start[k] = v
-    return ParameterTable(observed, latent, tuple(parameters), n_free, start, lower, upper, tuple(free_labels))
+    return ParameterTable(observed, latent, tuple(parameters), n_free, start, lower, upper, tuple(free_labels),
+                          group_labels, multi)
+
+
+def _entry_kind(entry: dict) -> str:
+    return _kind_for(entry["matrix"], entry["row"] == entry["col"])
+
+
+def _invariant_kinds(spec: Spec) -> set[str]:
+    return {kind for word in spec.invariant for kind in INVARIANCE_CLASSES[word]}
+
+
+def _mean_identified(spec, factor, entries, tied_across_groups, lat_ix) -> bool:
+    """A factor mean can be free in a later group when an intercept (or, for a
+    higher-order factor, a lower factor's mean route) of one of its indicators
+    is held equal across groups together with its loading."""
+    for ind in factor.indicators:
+        x = ind.text
+        if x in lat_ix:
+            continue
+        if tied_across_groups(("intercept", (x,))) and (
+            tied_across_groups(("loading", (factor.name.text, x)))
+            or entries[(0, "loading", (factor.name.text, x))]["fixed"] is not None
+        ):
+            return True
+    return False
+
+
+def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool) -> None:
+    refs = [r for r in all_refs(spec) if r.group is not None]
+    mean_refs = [r for r in all_refs(spec) if r.kind in ("intercept", "mean")]
+    if not multi:
+        if refs:
+            raise _fail(spec, f"'in group {refs[0].group}' needs groups: give the group column (--group COLUMN)", refs[0])
+        if mean_refs:
+            raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only with groups (--group COLUMN)", mean_refs[0])
+        return
+    for ref in refs:
+        if ref.group not in group_labels:
+            guess = difflib.get_close_matches(ref.group, group_labels, n=1)
+            hint = f"; did you mean '{guess[0]}'?" if guess else f"; the groups are {', '.join(group_labels)}"
+            raise _fail(spec, f"there is no group '{ref.group}' in the data{hint}", ref)
 
 
 def _merge_terms(terms: list[tuple[int, float]]) -> tuple[tuple[int, float], ...]:
@@ -265,17 +388,19 @@ def _merge_terms(terms: list[tuple[int, float]]) -> tuple[tuple[int, float], ...
     return tuple((i, c) for i, c in merged.items() if c != 0.0)
 
 
-_KIND_ORDER = {"loading": 0, "variance": 1, "covariance": 2}
+_KIND_ORDER = {"loading": 0, "variance": 1, "covariance": 2, "intercept": 3, "mean": 4}
 
 
 def _sort_key(key: tuple, entry: dict) -> tuple:
-    # loadings, then variances (factors before residuals), then covariances
-    matrix_rank = {"L": 0, "B": 0, "P": 1, "T": 2}[entry["matrix"]]
-    return (_KIND_ORDER[key[0]], matrix_rank, entry["col"] if key[0] == "loading" else entry["row"], entry["row"], entry["col"])
+    # by group; then loadings, variances (factors before residuals), covariances, intercepts, means
+    g, kind = key[0], key[1]
+    matrix_rank = {"L": 0, "B": 0, "P": 1, "T": 2, "N": 3, "M": 4}[entry["matrix"]]
+    return (g, _KIND_ORDER[kind], matrix_rank, entry["col"] if kind == "loading" else entry["row"], entry["row"], entry["col"])
 
 
-def _label(key: tuple) -> str:
-    return f"{key[0]}({', '.join(key[1])})"
+def _label(key: tuple, group_labels: tuple[str, ...] | None) -> str:
+    text = f"{key[1]}({', '.join(key[2])})"
+    return f"{text} [{group_labels[key[0]]}]" if group_labels else text
 
 
 def _scale_error(spec: Spec, factor: str, why: str) -> ModelError:

@@ -15,7 +15,8 @@ import numpy as np
 from cfa_tool.model.parameters import ParameterTable
 
 
-def starting_values(table: ParameterTable, S: np.ndarray) -> np.ndarray:
+def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | None = None) -> np.ndarray:
+    """Start values for theta from a (pooled) covariance matrix and mean vector."""
     lat_ix = {n: i for i, n in enumerate(table.latent)}
     obs_ix = {n: i for i, n in enumerate(table.observed)}
     sd = np.sqrt(np.clip(np.diag(S), 1e-12, None))
@@ -101,7 +102,9 @@ def starting_values(table: ParameterTable, S: np.ndarray) -> np.ndarray:
             ls = [v for (f, y), v in std_loading.items() if y == x]
             explained = min(sum(v * v for v in ls), 0.9) if ls else 0.5
             target[e] = S[obs_ix[x], obs_ix[x]] * (1.0 - explained)
-        # residual covariances start at zero
+        elif par.kind == "intercept" and means is not None:
+            target[e] = means[obs_ix[par.variables[0]]]
+        # residual covariances and factor means start at zero
 
     J, offset = table.mapping()
     theta, *_ = np.linalg.lstsq(J, target - offset, rcond=None)
