@@ -29,19 +29,55 @@ def build_parser() -> argparse.ArgumentParser:
     fit = sub.add_parser("fit", help="fit a model to data and report the result")
     fit.add_argument("model", metavar="MODEL", help="model file")
     fit.add_argument("--data", required=True, metavar="FILE", help="data file (CSV, TSV or semicolon-separated)")
+    _add_group_options(fit, required=False)
     _add_output_options(fit)
 
     check = sub.add_parser("check", help="parse a model and check it against the data without fitting")
     check.add_argument("model", metavar="MODEL", help="model file")
     check.add_argument("--data", required=True, metavar="FILE", help="data file")
+    check.add_argument("--group", metavar="COLUMN", help="column that defines groups")
+
+    compare = sub.add_parser("compare", help="fit rival models to the same rows and test nested pairs")
+    compare.add_argument("models", metavar="MODEL", nargs="+", help="two or more model files")
+    compare.add_argument("--data", required=True, metavar="FILE", help="data file")
+    _add_group_options(compare, required=False)
+    _add_json_option(compare)
+
+    inv = sub.add_parser("invariance", help="test configural, metric, scalar and strict invariance across groups")
+    inv.add_argument("model", metavar="MODEL", help="model file")
+    inv.add_argument("--data", required=True, metavar="FILE", help="data file")
+    _add_group_options(inv, required=True)
+    inv.add_argument("--partial", choices=("none", "auto"), default="none",
+                     help="'auto': when a step fails, free the constraint with the largest score test until it holds")
+    inv.add_argument("--alpha", type=float, default=0.05, help="level of the chi-square difference tests (default .05)")
+    _add_json_option(inv)
+
+    rep = sub.add_parser("replicate", help="check that a model replicates in new data (or in random halves of one data set)")
+    rep.add_argument("model", metavar="MODEL", help="model file")
+    rep.add_argument("--calibration", metavar="FILE", help="data the model is estimated in")
+    rep.add_argument("--validation", metavar="FILE", help="new data the estimates are checked in")
+    rep.add_argument("--data", metavar="FILE", help="one data file to split at random into two halves")
+    rep.add_argument("--seed", type=int, default=1, help="seed of the random split (default 1)")
+    _add_json_option(rep)
 
     demo = sub.add_parser("demo", help="fit the bundled rider-experience demo and print the report")
     _add_output_options(demo)
     return parser
 
 
-def _add_output_options(p: argparse.ArgumentParser) -> None:
+def _add_group_options(p: argparse.ArgumentParser, required: bool) -> None:
+    p.add_argument("--group", required=required, metavar="COLUMN",
+                   help="column that defines groups: the model is fitted in every group at once, with intercepts and factor means")
+    p.add_argument("--reference-group", metavar="LABEL",
+                   help="group whose factor means are fixed at zero (default: the first label in sorted order)")
+
+
+def _add_json_option(p: argparse.ArgumentParser) -> None:
     p.add_argument("--json", metavar="PATH", help="also write the result as JSON to PATH ('-' for standard output only)")
+
+
+def _add_output_options(p: argparse.ArgumentParser) -> None:
+    _add_json_option(p)
     p.add_argument("--information", choices=("expected", "observed"), default="expected",
                    help="information matrix for standard errors (default: expected)")
     p.add_argument("--mi-threshold", type=float, default=3.84, metavar="X",
@@ -91,53 +127,97 @@ def _run(args: argparse.Namespace) -> int:
     if args.command == "check":
         from cfa_tool.api import check
 
-        spec = check(args.model, args.data)
+        spec = check(args.model, args.data, group=args.group)
         print(f"{args.model}: model is valid: {len(spec.factors)} factors, {len(spec.observed_names)} indicators, all found in {args.data}")
         return 0
     if args.command == "demo":
         from cfa_tool.resources import resource_dir
 
+        args.group = args.reference_group = None
         model = resource_dir("models") / "rider_three_factors.cfa"
         data = resource_dir("demo") / "rider_survey.csv"
         return _fit_and_report(args, str(model), str(data))
+    if args.command == "compare":
+        from cfa_tool.reporting.workflow_text import render_comparison
+        from cfa_tool.workflows.compare import compare
+
+        _check_output(args, args.models + [args.data])
+        result = compare(args.models, args.data, group=args.group, reference_group=args.reference_group)
+        return _emit(args, result, render_comparison)
+    if args.command == "invariance":
+        from cfa_tool.reporting.workflow_text import render_invariance
+        from cfa_tool.workflows.invariance import invariance
+
+        _check_output(args, [args.model, args.data])
+        result = invariance(args.model, args.data, args.group, reference_group=args.reference_group,
+                            partial=args.partial, alpha=args.alpha)
+        return _emit(args, result, render_invariance)
+    if args.command == "replicate":
+        return _replicate(args)
     return _fit_and_report(args, args.model, args.data)
 
 
-def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
-    from cfa_tool.api import fit
+def _replicate(args: argparse.Namespace) -> int:
+    from cfa_tool.reporting.workflow_text import render_replication
+    from cfa_tool.workflows.replication import replicate, split_half
 
-    inputs = [Path(model), Path(data)]
+    if args.data and (args.calibration or args.validation):
+        raise OptionError("give either --data (split-half) or --calibration and --validation, not both")
+    if args.data:
+        _check_output(args, [args.model, args.data])
+        pair = split_half(args.model, args.data, seed=args.seed)
+    elif args.calibration and args.validation:
+        _check_output(args, [args.model, args.calibration, args.validation])
+        pair = (replicate(args.model, args.calibration, args.validation),)
+    else:
+        raise OptionError("give --calibration and --validation files, or --data FILE to split one data set in two halves")
+
+    class _Pair:
+        def to_dict(self) -> dict:
+            return {"replications": [r.to_dict() for r in pair]}
+
+    return _emit(args, _Pair(), lambda _, console: render_replication(pair, console))
+
+
+def _check_output(args: argparse.Namespace, inputs: list[str]) -> None:
     if args.json and args.json != "-":
-        _refuse_overwriting_input(Path(args.json), inputs)
-    result = fit(model, data, information=args.information, mi_threshold=args.mi_threshold, mi_top=args.mi_top,
-                 max_iterations=args.max_iterations)
-    if not result.converged:
-        raise EstimationError(
-            f"the estimation did not converge ({result.message}); try start values closer to the expected solution "
-            f"('start ...' statements), check the data for extreme values, or simplify the model"
-        )
-    if args.json == "-":
-        from cfa_tool.reporting.json_report import to_json
+        _refuse_overwriting_input(Path(args.json), [Path(i) for i in inputs])
 
+
+def _emit(args: argparse.Namespace, result, render) -> int:
+    from cfa_tool.reporting.json_report import to_json
+
+    if args.json == "-":
         sys.stdout.write(to_json(result))
         return 0
-    _print_report(result)
+    render(result, _console())
     if args.json:
-        from cfa_tool.reporting.json_report import to_json
-
         write_atomically(Path(args.json), to_json(result))
         print(f"JSON result written to {args.json}")
     return 0
 
 
-def _print_report(result) -> None:
+def _console():
     from rich.console import Console
-
-    from cfa_tool.reporting.terminal import render
 
     console = Console(highlight=False, markup=False, emoji=False)
     console.width = max(console.width, 120)  # tables stay readable when piped or in a narrow window
-    render(result, console)
+    return console
+
+
+def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
+    from cfa_tool.api import fit
+    from cfa_tool.reporting.terminal import render
+
+    _check_output(args, [model, data])
+    result = fit(model, data, group=args.group, reference_group=args.reference_group, information=args.information,
+                 mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations)
+    if not result.converged:
+        raise EstimationError(
+            f"the estimation did not converge ({result.message}); try start values closer to the expected solution "
+            f"('start ...' statements), check the data for extreme values, or simplify the model"
+        )
+    return _emit(args, result, render)
 
 
 def _refuse_overwriting_input(target: Path, inputs: list[Path]) -> None:

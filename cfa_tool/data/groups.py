@@ -43,7 +43,7 @@ def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], sour
     out = []
     for label in labels:
         part = frame.loc[(keys == label).to_numpy()]
-        out.append((label, sample_moments(part, names, f"{source} (group '{label}' of {column})")))
+        out.append((label, sample_moments(part, names, source, group=f"'{label}' of {column}")))
     return out, int(keys.isna().sum())
 
 

@@ -23,6 +23,7 @@ class SampleMoments:
     rows_read: int
     rows_dropped: int
     source: str
+    group: str | None = None  # 'label of column' for one group of a multi-group data set
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
@@ -42,8 +43,11 @@ def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) ->
     return np.column_stack(columns) if columns else np.zeros((len(frame), 0))
 
 
-def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> SampleMoments:
+def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, group: str | None = None) -> SampleMoments:
     """Listwise-complete moments of the model variables."""
+    file_source = source
+    if group is not None:
+        source = f"{source} (group {group})"
     values = numeric_columns(frame, names, source)
     infinite = np.isinf(values)
     if infinite.any():
@@ -75,4 +79,4 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> 
             f"{source}: the covariance matrix is singular: the columns {', '.join(repr(v) for v in involved)} are exact linear "
             f"combinations of each other (for example one is the sum of others); drop one of them"
         )
-    return SampleMoments(tuple(names), cov, means, n, len(frame), int((~complete).sum()), source)
+    return SampleMoments(tuple(names), cov, means, n, len(frame), int((~complete).sum()), file_source, group)

@@ -1,4 +1,4 @@
-"""JSON output: the result's dictionary, with stable key order."""
+"""JSON output: a result's dictionary, with stable key order."""
 
 from __future__ import annotations
 
@@ -8,6 +8,7 @@ from cfa_tool import __version__
 
 
 def to_json(result) -> str:
+    """Any result object with ``to_dict()``: a fit, a comparison, an invariance ladder, a replication."""
     payload = {"tool": "cfa-tool", "version": __version__}
     payload.update(result.to_dict())
     return json.dumps(payload, indent=2, allow_nan=False) + "\n"

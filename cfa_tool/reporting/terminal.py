@@ -26,6 +26,8 @@ _KIND_TITLES = {
     "factor_covariance": "Factor covariances (standardized: correlations)",
     "residual_variance": "Residual (error) variances",
     "residual_covariance": "Residual covariances (standardized: residual correlations)",
+    "intercept": "Intercepts",
+    "mean": "Factor means",
 }
 
 
@@ -58,10 +60,12 @@ def _p_phrase(p) -> str:
     return text if text.startswith("<") else f"= {text}"
 
 
-def estimate_tables(result) -> list[Table]:
+def estimate_tables(result, group: int = 0) -> list[Table]:
     tables = []
+    label = result.groups[group].label
+    r_squared = result.groups[group].r_squared
     for kind, title in _KIND_TITLES.items():
-        rows = [r for r in result.estimates if r.kind == kind]
+        rows = [r for r in result.estimates if r.kind == kind and r.group == label]
         if not rows:
             continue
         first = "Factor" if kind == "loading" else "Variable"
@@ -86,11 +90,19 @@ def estimate_tables(result) -> list[Table]:
                 num(r.standardized),
             ]
             if kind == "loading":
-                r2 = result.r_squared.get(r.variables[1])
+                r2 = r_squared.get(r.variables[1])
                 cells.append(num(r2) if r2 is not None else "")
             table.add_row(*cells)
         tables.append(table)
     return tables
+
+
+def group_table(result) -> Table:
+    table = _table(f"Groups ({result.group_column})", [("Group", "left"), ("N", "right"), ("Share of chi-square", "right"),
+                                                       ("SRMR", "right")])
+    for g in result.groups:
+        table.add_row(str(g.label), str(g.data.n_obs), num(g.chi_square), unit(g.srmr))
+    return table
 
 
 def modification_table(result) -> Table | None:
@@ -101,19 +113,20 @@ def modification_table(result) -> Table | None:
     title = f"Largest modification indices (at least {result.mi_threshold:g}; {len(shown)} of {len(rows)} shown)"
     table = _table(title, [("Parameter that could be freed", "left"), ("Index", "right"), ("Expected change", "right"), ("Standardized", "right")])
     for m in shown:
-        table.add_row(f"{m.kind.replace('_', ' ')} {', '.join(m.variables)}", num(m.index, 2), num(m.expected_change), num(m.standardized_expected_change))
+        where = f" in {m.group}" if m.group is not None else ""
+        table.add_row(f"{m.kind.replace('_', ' ')} {', '.join(m.variables)}{where}", num(m.index, 2), num(m.expected_change), num(m.standardized_expected_change))
     return table
 
 
 MAX_RESIDUAL_MATRIX = 20
 
 
-def residual_table(result) -> Table | None:
+def residual_table(result, group: int = 0) -> Table | None:
     """Lower triangle of the residual correlations (sample minus model)."""
     names = result.observed
     if len(names) > MAX_RESIDUAL_MATRIX or len(names) < 2:
         return None
-    r = result.residual_correlations
+    r = result.groups[group].residual_correlations
     table = _table("Residual correlations (sample minus model)", [("", "left")] + [(str(k + 1), "right") for k in range(len(names) - 1)])
     for i, name in enumerate(names):
         if i == 0:
@@ -139,11 +152,19 @@ def render(result, console: Console) -> None:
             a, b, r = local
             console.print(f"Local fit: the largest residual correlation is between {a} and {b}: {unit(r, 2)}.")
         console.print()
-    for table in estimate_tables(result):
-        console.print(table)
-    for extra in (residual_table(result) if result.converged else None, modification_table(result)):
-        if extra is not None:
-            console.print(extra)
+    if result.multigroup and result.converged:
+        console.print(group_table(result))
+    for g, group in enumerate(result.groups):
+        if result.multigroup:
+            console.print(Text(f"Group {group.label} (N = {group.data.n_obs})", style="bold reverse"))
+        for table in estimate_tables(result, g):
+            console.print(table)
+        table = residual_table(result, g) if result.converged else None
+        if table is not None:
+            console.print(table)
+    mi = modification_table(result)
+    if mi is not None:
+        console.print(mi)
     if result.warnings:
         console.print(Text("Warnings", style="bold"))
         for w in result.warnings:

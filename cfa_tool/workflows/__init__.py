@@ -1,0 +1,1 @@
+"""Workflows that call the fitting pipeline several times: comparison, invariance, replication."""

@@ -1,0 +1,97 @@
+"""Compare rival models fitted to the same rows of data."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from pathlib import Path
+
+import pandas as pd
+
+from cfa_tool.api import load_frame, load_spec, make_options, moments_for
+from cfa_tool.data.matching import check_columns
+from cfa_tool.errors import OptionError
+from cfa_tool.fitting import fit_moments
+from cfa_tool.language.spec import Spec
+from cfa_tool.results import FitResult, clean
+from cfa_tool.workflows.nesting import DifferenceTest, difference_test, is_nested
+
+
+@dataclass(frozen=True)
+class NotNested:
+    first: str
+    second: str
+    reason: str
+
+
+@dataclass(frozen=True, eq=False)
+class Comparison:
+    names: tuple[str, ...]
+    results: tuple[FitResult, ...]
+    tests: tuple[DifferenceTest, ...]
+    not_nested: tuple[NotNested, ...]
+    n_obs: int
+    rows_dropped: int
+
+    def to_dict(self) -> dict:
+        return {
+            "n_obs": self.n_obs,
+            "rows_dropped": self.rows_dropped,
+            "models": [
+                {"name": name, "source": r.model_source, "converged": r.converged,
+                 "fit": clean(r.fit.to_dict()) if r.fit is not None and r.converged else None}
+                for name, r in zip(self.names, self.results)
+            ],
+            "tests": [t.to_dict() for t in self.tests],
+            "not_nested": [dict(first=n.first, second=n.second, reason=n.reason) for n in self.not_nested],
+        }
+
+
+def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, group: str | None = None,
+            reference_group: str | None = None, **options) -> Comparison:
+    """Fit every model to the same rows (complete on all their variables) and test each nested pair."""
+    if len(models) < 2:
+        raise OptionError("comparing needs at least two models")
+    fit_options = make_options(options)
+    specs = [load_spec(m) for m in models]
+    frame, source = load_frame(data)
+    frame = frame.set_axis([str(c) for c in frame.columns], axis=1)
+    for spec in specs:
+        check_columns(spec, list(frame.columns), source)
+    used = sorted({x for spec in specs for x in spec.observed_names})
+    complete = frame.dropna(subset=used)
+    if group is not None and group in frame.columns:
+        complete = complete.loc[complete[group].notna()]
+    dropped = len(frame) - len(complete)
+    names = _unique_names(specs)
+    results = []
+    for spec in specs:
+        groups, _ = moments_for(spec, complete, source, group, reference_group)
+        results.append(fit_moments(spec, groups, fit_options, group_column=group))
+    tests: list[DifferenceTest] = []
+    not_nested: list[NotNested] = []
+    for i in range(len(specs)):
+        for j in range(i + 1, len(specs)):
+            a, b = (i, j) if _df(results[i]) >= _df(results[j]) else (j, i)
+            if not (results[a].converged and results[b].converged):
+                not_nested.append(NotNested(names[a], names[b], "a model did not converge"))
+                continue
+            nested, reason = is_nested(results[a], specs[b], results[b])
+            if nested:
+                tests.append(difference_test(results[a], results[b], names[a], names[b]))
+            else:
+                not_nested.append(NotNested(names[a], names[b], reason))
+    return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped)
+
+
+def _df(result: FitResult) -> float:
+    return result.fit.df if result.fit is not None else float("-inf")
+
+
+def _unique_names(specs: list[Spec]) -> list[str]:
+    names = []
+    for spec in specs:
+        name = spec.title or Path(spec.source).stem
+        while name in names:
+            name += "'"
+        names.append(name)
+    return names

@@ -1,0 +1,174 @@
+"""Measurement invariance across groups: the configural-metric-scalar-strict
+ladder (Meredith 1993; Vandenberg & Lance 2000), each step tested against the
+one before, with an optional search for partial invariance (Byrne,
+Shavelson & Muthen 1989) guided by score tests of the step's equality
+constraints.
+
+Change in CFI is read against the -.01 guide of Cheung & Rensvold (2002) and
+change in RMSEA against the .015 guide of Chen (2007); both are common
+practice, not tests.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+from pathlib import Path
+
+import pandas as pd
+
+from cfa_tool.api import make_options, moments_for, read_inputs
+from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
+from cfa_tool.errors import OptionError
+from cfa_tool.fitting import assess, estimate
+from cfa_tool.language.spec import ParameterRef, Spec
+from cfa_tool.results import FitResult, clean
+from cfa_tool.workflows.nesting import DifferenceTest, difference_test
+
+LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
+    # level, classes held equal, parameter kinds the step adds
+    ("configural", (), ()),
+    ("metric", ("loadings",), ("loading",)),
+    ("scalar", ("loadings", "intercepts"), ("intercept",)),
+    ("strict", ("loadings", "intercepts", "residuals"), ("residual_variance", "residual_covariance")),
+)
+CFI_GUIDE = -0.01  # Cheung & Rensvold (2002)
+RMSEA_GUIDE = 0.015  # Chen (2007)
+PARTIAL_CHOICES = ("none", "auto")
+MAX_FREED_PER_STEP = 10
+SEARCH_WARNING = (
+    "the partial-invariance search chose parameters from these data; such a data-driven search capitalises on chance, "
+    "so the freed parameters need confirmation in an independent sample"
+)
+
+
+@dataclass(frozen=True)
+class FreedParameter:
+    level: str
+    kind: str
+    variables: tuple[str, ...]
+    group: str | None
+    score: float
+
+    def to_dict(self) -> dict:
+        return clean({"level": self.level, "kind": self.kind, "variables": list(self.variables), "group": self.group,
+                      "score_test": self.score})
+
+
+@dataclass(frozen=True, eq=False)
+class InvarianceStep:
+    level: str
+    result: FitResult
+    versus_previous: DifferenceTest | None
+    holds: bool
+    culprits: tuple[ModificationIndex, ...]  # score tests of this step's constraints, largest first
+
+    def to_dict(self) -> dict:
+        vs = None
+        if self.versus_previous is not None:
+            t = self.versus_previous
+            vs = clean({"chi_square_difference": t.chi_square_difference, "df_difference": t.df_difference,
+                        "p_value": t.p_value, "delta_cfi": t.delta_cfi, "delta_rmsea": t.delta_rmsea})
+        return {
+            "level": self.level,
+            "converged": self.result.converged,
+            "fit": clean(self.result.fit.to_dict()) if self.result.fit is not None else None,
+            "versus_previous": vs,
+            "holds": self.holds,
+            "constraint_tests": [clean(c.to_dict()) for c in self.culprits[:10]],
+        }
+
+
+@dataclass(frozen=True, eq=False)
+class InvarianceResult:
+    group_column: str
+    groups: tuple[str, ...]
+    steps: tuple[InvarianceStep, ...]
+    freed: tuple[FreedParameter, ...]
+    alpha: float
+    warnings: tuple[str, ...]
+
+    def to_dict(self) -> dict:
+        return {
+            "group_column": self.group_column,
+            "groups": list(self.groups),
+            "alpha": self.alpha,
+            "steps": [s.to_dict() for s in self.steps],
+            "freed": [f.to_dict() for f in self.freed],
+            "warnings": list(self.warnings),
+        }
+
+
+def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
+               reference_group: str | None = None, partial: str = "none", alpha: float = 0.05,
+               **options) -> InvarianceResult:
+    """Fit the invariance ladder; with ``partial='auto'`` free the likeliest culprits until each step holds."""
+    if partial not in PARTIAL_CHOICES:
+        raise OptionError(f"partial must be one of {', '.join(PARTIAL_CHOICES)}, not '{partial}'")
+    if not 0 < alpha < 1:
+        raise OptionError("alpha must be between 0 and 1")
+    fit_options = make_options(options)
+    spec, frame, source = read_inputs(model, data)
+    if spec.invariant:
+        raise OptionError("the invariance ladder sets 'invariant' itself; remove 'invariant' statements from the model file")
+    groups, notes = moments_for(spec, frame, source, group, reference_group)
+    labels = tuple(label for label, _ in groups)
+
+    steps: list[InvarianceStep] = []
+    freed: list[FreedParameter] = []
+    exceptions: list[ParameterRef] = list(spec.noninvariant)
+    previous: FitResult | None = None
+    start = None
+    for level, classes, kinds in LEVELS:
+        while True:
+            level_spec = replace(spec, invariant=classes, noninvariant=tuple(exceptions))
+            est = estimate(level_spec, groups, fit_options, start=start)
+            result = assess(level_spec, groups, est, fit_options, group_column=group)
+            if not result.converged:
+                steps.append(InvarianceStep(level, result, None, False, ()))
+                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
+                                        tuple(notes) + (f"the {level} model did not converge; the ladder stops there",))
+            test = difference_test(result, previous, level, steps[-1].level) if previous is not None else None
+            holds = test is None or not (test.p_value < alpha)
+            culprits = tuple(equality_score_tests(est.model, est.theta, est.likelihood, kinds)) if kinds else ()
+            culprits = tuple(c for c in culprits if _may_free(c, exceptions, level_spec, kinds))
+            if holds or partial == "none" or not culprits or sum(f.level == level for f in freed) >= MAX_FREED_PER_STEP:
+                break
+            top = culprits[0]
+            exceptions.append(ParameterRef(_ref_kind(top.kind), top.variables, spec.factors[0].name.location))
+            freed.append(FreedParameter(level, top.kind, top.variables, top.group, top.index))
+            start = None
+        steps.append(InvarianceStep(level, result, test, holds, culprits))
+        previous = result
+        start = est.theta
+    warnings = list(notes)
+    if freed:
+        warnings.append(SEARCH_WARNING)
+    return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, tuple(warnings))
+
+
+def _ref_kind(kind: str) -> str:
+    return {"residual_variance": "variance", "residual_covariance": "covariance"}.get(kind, kind)
+
+
+def _may_free(candidate: ModificationIndex, exceptions: list[ParameterRef], spec: Spec, kinds: tuple[str, ...]) -> bool:
+    """Keep at least one loading and one intercept per factor held equal, so factor scales and means stay comparable."""
+    key = (_ref_kind(candidate.kind), candidate.variables)
+    if any((r.kind, r.names) == key for r in exceptions):
+        return False
+    if candidate.kind not in ("loading", "intercept"):
+        return True
+    freed = {(r.kind, r.names) for r in exceptions}
+    for factor in spec.factors:
+        items = [i.text for i in factor.indicators if i.text in spec.observed_names]
+        if candidate.kind == "loading" and candidate.variables[0] == factor.name.text:
+            keys = [("loading", (factor.name.text, x)) for x in items]
+        elif candidate.kind == "intercept" and candidate.variables[0] in items:
+            keys = [("intercept", (x,)) for x in items]
+        else:
+            continue
+        still_equal = [k for k in keys if k not in freed and k != key]
+        if candidate.kind == "loading":
+            still_equal = [k for k in still_equal if k != ("loading", (factor.name.text, items[0]))] or still_equal
+        if len(still_equal) < 1:
+            return False
+    return True

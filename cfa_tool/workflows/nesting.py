@@ -1,0 +1,74 @@
+"""Nested-model tests.
+
+Nesting is detected numerically (Bentler & Satorra 2010): model R is nested in
+model G when G, fitted to the moments implied by R's estimates, reproduces
+them exactly (minimum discrepancy zero) and R has more degrees of freedom.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from scipy import stats
+
+from cfa_tool.data.moments import SampleMoments
+from cfa_tool.fitting import FitOptions, estimate
+from cfa_tool.language.spec import Spec
+from cfa_tool.results import FitResult, clean
+
+NESTING_TOLERANCE = 1e-7  # minimum discrepancy below which the implied moments count as reproduced
+
+
+@dataclass(frozen=True)
+class DifferenceTest:
+    restricted: str
+    general: str
+    chi_square_difference: float
+    df_difference: int
+    p_value: float
+    method: str
+    delta_cfi: float
+    delta_rmsea: float
+
+    def to_dict(self) -> dict:
+        return clean(dict(self.__dict__))
+
+
+def difference_test(restricted: FitResult, general: FitResult, restricted_name: str, general_name: str) -> DifferenceTest:
+    """Likelihood-ratio chi-square difference test (Steiger, Shapiro & Browne 1985)."""
+    r, g = restricted.fit, general.fit
+    diff = r.chi_square - g.chi_square
+    ddf = r.df - g.df
+    p = float(stats.chi2.sf(max(diff, 0.0), ddf)) if ddf > 0 else float("nan")
+    return DifferenceTest(restricted_name, general_name, diff, ddf, p, "likelihood ratio", r.cfi - g.cfi, r.rmsea - g.rmsea)
+
+
+def implied_moments(result: FitResult) -> list[tuple[str | None, SampleMoments]]:
+    """Each group's model-implied moments, as if they were data of the same size."""
+    out = []
+    for group in result.groups:
+        mean = group.implied_mean if group.implied_mean is not None else group.sample_mean
+        out.append((group.label, SampleMoments(result.observed, group.implied_covariance, mean, group.data.n_obs,
+                                               group.data.n_obs, 0, "implied moments")))
+    return out
+
+
+def is_nested(restricted: FitResult, general_spec: Spec, general: FitResult) -> tuple[bool, str]:
+    """Whether ``restricted`` is nested in ``general``, with the reason when it is not."""
+    if set(restricted.observed) != set(general.observed):
+        return False, "the models use different variables, so they are not fitted to the same covariance matrix"
+    if restricted.multigroup != general.multigroup:
+        return False, "one model is fitted in groups and the other is not"
+    if restricted.fit.df == general.fit.df:
+        same = abs(restricted.fit.chi_square - general.fit.chi_square) < 1e-6 * max(1.0, general.fit.chi_square)
+        return False, "the models have the same degrees of freedom" + (
+            " and the same chi-square: they are probably equivalent models" if same else ", so neither is a restricted form of the other")
+    if restricted.fit.df < general.fit.df:
+        return False, "the first model does not have more degrees of freedom than the second"
+    est = estimate(general_spec, implied_moments(restricted), FitOptions(), start=general.theta)
+    if not est.converged:
+        return False, "the nesting check did not converge"
+    if est.value > NESTING_TOLERANCE:
+        return False, (f"the second model cannot reproduce the first model's implied covariances "
+                       f"(discrepancy {est.value:.2g}), so the first is not a special case of it")
+    return True, ""

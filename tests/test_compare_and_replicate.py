@@ -1,0 +1,115 @@
+"""Comparing rival models and replication in new data."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+
+import cfa_tool
+from cfa_tool.errors import OptionError
+from cfa_tool.workflows.compare import compare
+from cfa_tool.workflows.replication import replicate, split_half
+from tests.conftest import ONE_FACTOR, THREE_FACTORS
+from tests.test_cli import DATA, MODEL, run
+
+
+def test_one_versus_three_factors(hs_data):
+    # Holzinger & Swineford (1939): 312.264 on 27 df minus 85.306 on 24 df = 226.958 on 3 df
+    # (both chi-squares recalled from memory of widely published analyses).
+    result = compare([ONE_FACTOR, THREE_FACTORS], hs_data)
+    (test,) = result.tests
+    assert test.general == "Holzinger-Swineford, three abilities"  # the more general model
+    assert test.chi_square_difference == pytest.approx(226.958, abs=2e-3)
+    assert test.df_difference == 3
+    assert test.p_value < 1e-40
+    assert test.delta_cfi < 0 and test.delta_rmsea > 0
+    assert test.method == "likelihood ratio"
+
+
+def test_nesting_is_detected_not_assumed(hs_data):
+    three = THREE_FACTORS
+    cross = "factor visual: x1, x2, x3, x9\nfactor textual: x4..x6\nfactor speed: x7..x9\n"
+    other = "factor visual: x1, x2, x3, x4\nfactor textual: x5, x6\nfactor speed: x7..x9\n"  # same variables, not nested
+    result = compare([three, cross, other], hs_data)
+    pairs = {(t.restricted, t.general) for t in result.tests}
+    assert len(pairs) == 1
+    reasons = " ".join(n.reason for n in result.not_nested)
+    assert "cannot reproduce" in reasons
+
+
+def test_different_variables_are_refused_with_a_reason(hs_data):
+    result = compare([THREE_FACTORS, "factor f: x1..x6\n"], hs_data)
+    assert not result.tests
+    assert "different variables" in result.not_nested[0].reason
+
+
+def test_same_rows_for_every_model(hs_data):
+    data = hs_data.copy()
+    data.loc[data.index[:5], "x9"] = np.nan
+    result = compare(["factor f: x1..x6\n", "factor f: x1..x3\nfactor g: x4..x6\nfactor h: x7..x9\n"], data)
+    assert result.n_obs == 296 and result.rows_dropped == 5
+    assert {r.n_obs for r in result.results} == {296}
+
+
+def test_compare_needs_two_models(hs_data):
+    with pytest.raises(OptionError):
+        compare([THREE_FACTORS], hs_data)
+
+
+def test_validating_on_the_calibration_sample_reproduces_its_fit(hs_data):
+    # With validation data = calibration data, the CVI is the minimum discrepancy F_min
+    # (definition, Cudeck & Browne 1983) and the tight chi-square is N F_min on p(p+1)/2 df.
+    rep = replicate(THREE_FACTORS, hs_data, hs_data)
+    own = rep.calibration_result.fit
+    assert rep.cvi == pytest.approx(own.chi_square / 301, rel=1e-9)
+    assert rep.tight_chi_square == pytest.approx(own.chi_square, rel=1e-9)
+    assert rep.tight_df == 45
+    assert rep.loose.fit.chi_square == pytest.approx(own.chi_square, rel=1e-9)
+    assert rep.cvi_saturated == pytest.approx(0.0, abs=1e-12)
+
+
+def test_split_half_is_seeded_and_runs_both_ways(hs_data):
+    first = split_half(THREE_FACTORS, hs_data, seed=5)
+    again = split_half(THREE_FACTORS, hs_data, seed=5)
+    other = split_half(THREE_FACTORS, hs_data, seed=6)
+    assert first[0].cvi == again[0].cvi and first[1].cvi == again[1].cvi
+    assert first[0].cvi != other[0].cvi
+    assert first[0].calibration_result.n_obs + first[1].calibration_result.n_obs == 301
+    # a model that fits the population should cross-validate better than the one-factor rival
+    one = split_half(ONE_FACTOR, hs_data, seed=5)
+    assert first[0].cvi < one[0].cvi
+
+
+def test_cli_compare_invariance_replicate_json(tmp_path):
+    one = MODEL.parent / "rider_one_factor.cfa"
+    proc = run("compare", str(one), str(MODEL), "--data", str(DATA), "--json", "-")
+    assert proc.returncode == 0, proc.stderr
+    out = json.loads(proc.stdout)
+    assert [set(m) >= {"name", "fit"} for m in out["models"]] == [True, True]
+    assert set(out["tests"][0]) >= {"restricted", "general", "chi_square_difference", "df_difference", "p_value", "method"}
+
+    proc = run("invariance", str(MODEL), "--data", str(DATA), "--group", "district", "--partial", "auto", "--json", "-")
+    assert proc.returncode == 0, proc.stderr
+    out = json.loads(proc.stdout)
+    assert [s["level"] for s in out["steps"]] == ["configural", "metric", "scalar", "strict"]
+    assert set(out["steps"][1]["versus_previous"]) == {"chi_square_difference", "df_difference", "p_value", "delta_cfi", "delta_rmsea"}
+    assert "freed" in out
+
+    proc = run("replicate", str(MODEL), "--data", str(DATA), "--seed", "3", "--json", "-")
+    assert proc.returncode == 0, proc.stderr
+    out = json.loads(proc.stdout)
+    assert len(out["replications"]) == 2 and "cross_validation_index" in out["replications"][0]
+
+    proc = run("replicate", str(MODEL))
+    assert proc.returncode == 2 and "Traceback" not in proc.stderr
+
+
+def test_fit_with_groups_on_the_command_line():
+    proc = run("fit", str(MODEL), "--data", str(DATA), "--group", "district", "--json", "-")
+    assert proc.returncode == 0, proc.stderr
+    out = json.loads(proc.stdout)
+    assert [g["name"] for g in out["groups"]] == ["north", "south"]
+    assert {e["group"] for e in out["estimates"]} == {"north", "south"}
+    assert {e["kind"] for e in out["estimates"]} >= {"intercept", "mean"}
