@@ -41,6 +41,7 @@ def build_parser() -> argparse.ArgumentParser:
     compare.add_argument("models", metavar="MODEL", nargs="+", help="two or more model files")
     compare.add_argument("--data", required=True, metavar="FILE", help="data file")
     _add_group_options(compare, required=False)
+    _add_test_option(compare)
     _add_json_option(compare)
 
     inv = sub.add_parser("invariance", help="test configural, metric, scalar and strict invariance across groups")
@@ -72,6 +73,11 @@ def _add_group_options(p: argparse.ArgumentParser, required: bool) -> None:
                    help="group whose factor means are fixed at zero (default: the first label in sorted order)")
 
 
+def _add_test_option(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--test", choices=("normal", "satorra-bentler"), default="normal",
+                   help="'satorra-bentler': scaled chi-square, robust standard errors and robust fit indices for non-normal data")
+
+
 def _add_json_option(p: argparse.ArgumentParser) -> None:
     p.add_argument("--json", metavar="PATH", help="also write the result as JSON to PATH ('-' for standard output only)")
 
@@ -84,6 +90,7 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
                    help="show modification indices of at least X (default 3.84)")
     p.add_argument("--mi-top", type=int, default=None, metavar="N", help="show at most N modification indices")
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
+    _add_test_option(p)
 
 
 def _version() -> str:
@@ -142,7 +149,7 @@ def _run(args: argparse.Namespace) -> int:
         from cfa_tool.workflows.compare import compare
 
         _check_output(args, args.models + [args.data])
-        result = compare(args.models, args.data, group=args.group, reference_group=args.reference_group)
+        result = compare(args.models, args.data, group=args.group, reference_group=args.reference_group, test=args.test)
         return _emit(args, result, render_comparison)
     if args.command == "invariance":
         from cfa_tool.reporting.workflow_text import render_invariance
@@ -211,7 +218,7 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
 
     _check_output(args, [model, data])
     result = fit(model, data, group=args.group, reference_group=args.reference_group, information=args.information,
-                 mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations)
+                 mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=args.test)
     if not result.converged:
         raise EstimationError(
             f"the estimation did not converge ({result.message}); try start values closer to the expected solution "

@@ -14,6 +14,7 @@ from cfa_tool.assessment.admissibility import admissibility_warnings
 from cfa_tool.assessment.fit_indices import fit_indices, srmr_value
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
 from cfa_tool.assessment.modification import modification_indices
+from cfa_tool.assessment.normality import mardia
 from cfa_tool.assessment.residuals import correlation_residuals
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.data.groups import pooled
@@ -21,6 +22,7 @@ from cfa_tool.data.moments import SampleMoments
 from cfa_tool.errors import OptionError
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood
 from cfa_tool.estimation.optimizer import minimise
+from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
 from cfa_tool.inference.standard_errors import observed_information, parameter_covariance, wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import Spec
@@ -31,6 +33,7 @@ from cfa_tool.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, Fit
 
 ESTIMATOR = "maximum likelihood"
 INFORMATION_CHOICES = ("expected", "observed")
+TEST_CHOICES = ("normal", "satorra-bentler")
 
 
 @dataclass(frozen=True)
@@ -39,8 +42,12 @@ class FitOptions:
     mi_threshold: float = DEFAULT_MI_THRESHOLD
     mi_top: int | None = None
     max_iterations: int = 500
+    test: str = "normal"
+    normality: bool = True  # Mardia's tests (N^2 work: workflows that refit many times turn them off)
 
     def __post_init__(self) -> None:
+        if self.test not in TEST_CHOICES:
+            raise OptionError(f"test must be one of {', '.join(TEST_CHOICES)}, not '{self.test}'")
         if self.information not in INFORMATION_CHOICES:
             raise OptionError(f"information must be one of {', '.join(INFORMATION_CHOICES)}, not '{self.information}'")
         if self.mi_top is not None and self.mi_top < 0:
@@ -63,9 +70,10 @@ class Estimation:
     message: str
 
 
-def _ordered(moments: SampleMoments, observed: tuple[str, ...]) -> GroupMoments:
+def ordered_moments(moments: SampleMoments, observed: tuple[str, ...]) -> GroupMoments:
     order = [moments.names.index(n) for n in observed]
-    return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs)
+    rows = moments.rows[:, order] if moments.rows is not None else None
+    return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs, rows)
 
 
 def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options: FitOptions = FitOptions(),
@@ -75,7 +83,7 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     table = build_parameter_table(spec, tuple(label for label, _ in groups) if multi else None)
     check_counting_rule(spec, table)
     model = StructuredModel(table)
-    moments = [_ordered(m, table.observed) for _, m in groups]
+    moments = [ordered_moments(m, table.observed) for _, m in groups]
     likelihood = NormalLikelihood(model, moments)
     if start is None or len(start) != table.n_free:
         cov, mean = pooled([m for _, m in groups])
@@ -118,20 +126,30 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 f"(listwise deletion); {m.n_obs} rows were analysed"
             )
     fit = None
+    robust = None
     inference = None
     mis: list = []
+    robust_wanted = options.test == "satorra-bentler"
+    if robust_wanted and any(gm.rows is None for gm in likelihood.groups):
+        raise OptionError("the Satorra-Bentler test needs the raw data rows, not only a covariance matrix")
     if est.converged:
         evaluation = likelihood.evaluate(theta)
         information = evaluation.information
         check_information_rank(information, table.free_labels)
         if options.information == "observed":
             information = observed_information(lambda t: likelihood.evaluate(t).gradient, theta)
-        inference = wald_inference(values, model.J, parameter_covariance(information, n_total))
+        cov_theta = parameter_covariance(information, n_total)
+        if robust_wanted:
+            cov_theta, trace_ug = robust_parts(model, theta, likelihood)
+        inference = wald_inference(values, model.J, cov_theta)
         per_group = []
         for g, gm in enumerate(likelihood.groups):
             dev = gm.mean - mats[g].implied_mean() if multi else None
             per_group.append((gm.covariance, mats[g].implied_covariance(), gm.n_obs, dev))
         fit = fit_indices(per_group, est.value, table.n_free, multi)
+        if robust_wanted:
+            robust = robust_fit(fit.chi_square, fit.df, trace_ug, fit.baseline_chi_square, fit.baseline_df,
+                                baseline_trace(likelihood), n_total, table.n_groups)
         mis = modification_indices(model, theta, likelihood, exogenous_factors(spec))
         for g, m in enumerate(mats):
             prefix = f"group '{table.groups[g]}': " if multi else ""
@@ -181,6 +199,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 residual_correlations=correlation_residuals(gm.covariance, sigma),
                 sample_mean=gm.mean,
                 implied_mean=mats[g].implied_mean() if multi else None,
+                normality=mardia(gm.rows) if options.normality and gm.rows is not None else None,
             )
         )
     first = groups[0][1]
@@ -197,7 +216,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         model_name=spec.title or spec.source,
         model_source=spec.source,
         model_text=spec.text,
-        estimator=ESTIMATOR,
+        estimator=ESTIMATOR + (" with Satorra-Bentler scaled test and robust standard errors" if robust_wanted else ""),
         converged=est.converged,
         iterations=est.iterations,
         message=est.message,
@@ -206,6 +225,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         observed=table.observed,
         latent=table.latent,
         fit=fit,
+        robust=robust,
         estimates=tuple(estimates),
         modification_indices=tuple(mis),
         groups=tuple(group_results),

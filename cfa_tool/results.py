@@ -9,6 +9,8 @@ import numpy as np
 
 from cfa_tool.assessment.fit_indices import FitIndices
 from cfa_tool.assessment.modification import ModificationIndex
+from cfa_tool.assessment.normality import Normality
+from cfa_tool.inference.robust import RobustFit
 
 DEFAULT_MI_THRESHOLD = 3.84  # chi-square(1) critical value at alpha = .05
 
@@ -98,6 +100,7 @@ class GroupResult:
     residual_correlations: np.ndarray = field(repr=False)
     sample_mean: np.ndarray = field(repr=False)
     implied_mean: np.ndarray | None = field(repr=False, default=None)
+    normality: Normality | None = None
 
     def residuals_dict(self, observed: tuple[str, ...]) -> dict:
         out = {
@@ -127,6 +130,7 @@ class FitResult:
     estimates: tuple[EstimateRow, ...]
     modification_indices: tuple[ModificationIndex, ...]
     groups: tuple[GroupResult, ...]
+    robust: RobustFit | None = None
     group_column: str | None = None
     warnings: tuple[str, ...] = ()
     mi_threshold: float = DEFAULT_MI_THRESHOLD
@@ -180,6 +184,7 @@ class FitResult:
             "model": {"name": self.model_name, "source": self.model_source},
             "data": self.data.to_dict(),
             "fit": clean(self.fit.to_dict()) if (self.fit is not None and self.converged) else None,
+            "robust": clean(self.robust.to_dict()) if (self.robust is not None and self.converged) else None,
             "estimates": [row.to_dict() for row in self.estimates],
         }
         if self.multigroup:
@@ -192,12 +197,15 @@ class FitResult:
                     "srmr": clean(g.srmr) if self.converged else None,
                     "r_squared": clean(dict(g.r_squared)),
                     "residuals": g.residuals_dict(self.observed),
+                    "normality": clean(g.normality.to_dict()) if g.normality is not None else None,
                 }
                 for g in self.groups
             ]
         else:
             out["r_squared"] = clean(dict(self.r_squared))
             out["residuals"] = self.groups[0].residuals_dict(self.observed)
+            normality = self.groups[0].normality
+            out["normality"] = clean(normality.to_dict()) if normality is not None else None
         out["modification_indices"] = [clean(m.to_dict()) for m in self.reported_modification_indices()]
         out["warnings"] = list(self.warnings)
         return out

@@ -6,7 +6,7 @@ normal-theory ML fitting (Bollen 1989, ch. 4).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
@@ -24,6 +24,7 @@ class SampleMoments:
     rows_dropped: int
     source: str
     group: str | None = None  # 'label of column' for one group of a multi-group data set
+    rows: np.ndarray | None = field(default=None, repr=False, compare=False)  # the complete rows analysed
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
@@ -79,4 +80,4 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
             f"{source}: the covariance matrix is singular: the columns {', '.join(repr(v) for v in involved)} are exact linear "
             f"combinations of each other (for example one is the sum of others); drop one of them"
         )
-    return SampleMoments(tuple(names), cov, means, n, len(frame), int((~complete).sum()), file_source, group)
+    return SampleMoments(tuple(names), cov, means, n, len(frame), int((~complete).sum()), file_source, group, data)

@@ -44,6 +44,7 @@ class GroupMoments:
     covariance: np.ndarray
     mean: np.ndarray
     n_obs: int
+    rows: np.ndarray | None = None  # raw complete rows, when robust statistics are wanted
 
 
 class NormalLikelihood:

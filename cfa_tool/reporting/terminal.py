@@ -48,6 +48,14 @@ def fit_table(result) -> Table:
     table.add_row("RMSEA [90% interval]", f"{unit(f.rmsea)} [{unit(low)}, {unit(high)}]", "<= .06")
     table.add_row("  test of close fit (RMSEA <= .05)", f"p {_p_phrase(f.rmsea_p_close)}", "")
     table.add_row("SRMR", unit(f.srmr), "<= .08")
+    r = result.robust
+    if r is not None:
+        table.add_row(f"Scaled chi-square ({r.method})", f"{r.chi_square_scaled:.3f} on {r.df} df, p {_p_phrase(r.p_value_scaled)}",
+                      "use this test with non-normal data")
+        table.add_row("  scaling factor", num(r.scaling_factor), "1 under normality")
+        table.add_row("Robust CFI / TLI", f"{unit(r.cfi_robust)} / {unit(r.tli_robust)}", ">= .95")
+        low, high = r.rmsea_robust_ci90
+        table.add_row("Robust RMSEA [90% interval]", f"{unit(r.rmsea_robust)} [{unit(low)}, {unit(high)}]", "<= .06")
     table.add_row("Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", "")
     table.add_row("Log-likelihood", num(f.log_likelihood), "")
     table.add_row("AIC / BIC / adjusted BIC", f"{num(f.aic)} / {num(f.bic)} / {num(f.sabic)}", "lower is better")
@@ -58,6 +66,22 @@ def fit_table(result) -> Table:
 def _p_phrase(p) -> str:
     text = p_value(p)
     return text if text.startswith("<") else f"= {text}"
+
+
+def normality_lines(result) -> list[str]:
+    lines = []
+    for g in result.groups:
+        n = g.normality
+        if n is None:
+            continue
+        where = f" in group {g.label}" if g.label is not None else ""
+        line = (f"Multivariate normality{where} (Mardia 1970): skewness {n.skewness:.3f}, chi-square {n.skewness_chi_square:.2f} "
+                f"on {n.skewness_df} df, p {_p_phrase(n.skewness_p_value)}; kurtosis {n.kurtosis:.3f} "
+                f"(normal: {n.kurtosis_expected:g}), z = {n.kurtosis_z:.2f}, p {_p_phrase(n.kurtosis_p_value)}.")
+        if (n.skewness_p_value < 0.05 or n.kurtosis_p_value < 0.05) and result.robust is None:
+            line += " The data depart from normality: consider the scaled test (--test satorra-bentler)."
+        lines.append(line)
+    return lines
 
 
 def estimate_tables(result, group: int = 0) -> list[Table]:
@@ -147,6 +171,8 @@ def render(result, console: Console) -> None:
     if result.fit is not None and result.converged:
         console.print(fit_table(result))
         console.print(Text(GUIDE_NOTE, style="italic"))
+        for line in normality_lines(result):
+            console.print(line)
         local = result.largest_residual_correlation()
         if local:
             a, b, r = local

@@ -37,10 +37,10 @@ def render_comparison(comparison, console: Console) -> None:
     console.print(table)
     if comparison.tests:
         tests = _table("Nested models: chi-square difference tests",
-                       [("Restricted model", "left"), ("General model", "left"), ("Difference", "right"), ("df", "right"),
-                        ("p", "right"), ("Change in CFI", "right"), ("Change in RMSEA", "right")])
+                       [("Restricted model", "left"), ("General model", "left"), ("Test", "left"), ("Difference", "right"),
+                        ("df", "right"), ("p", "right"), ("Change in CFI", "right"), ("Change in RMSEA", "right")])
         for t in comparison.tests:
-            tests.add_row(t.restricted, t.general, *_difference_cells(t))
+            tests.add_row(t.restricted, t.general, t.method, *_difference_cells(t))
         console.print(tests)
     for n in comparison.not_nested:
         console.print(f"Not tested: {n.first} and {n.second}: {n.reason}. Compare them by AIC and BIC (lower is better).")

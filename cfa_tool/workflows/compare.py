@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 import pandas as pd
@@ -13,7 +13,10 @@ from cfa_tool.errors import OptionError
 from cfa_tool.fitting import fit_moments
 from cfa_tool.language.spec import Spec
 from cfa_tool.results import FitResult, clean
-from cfa_tool.workflows.nesting import DifferenceTest, difference_test, is_nested
+from cfa_tool.estimation.ml import NormalLikelihood
+from cfa_tool.fitting import ordered_moments
+from cfa_tool.inference.robust import robust_parts
+from cfa_tool.workflows.nesting import DifferenceTest, difference_test, is_nested, scaled_difference_tests
 
 
 @dataclass(frozen=True)
@@ -38,7 +41,8 @@ class Comparison:
             "rows_dropped": self.rows_dropped,
             "models": [
                 {"name": name, "source": r.model_source, "converged": r.converged,
-                 "fit": clean(r.fit.to_dict()) if r.fit is not None and r.converged else None}
+                 "fit": clean(r.fit.to_dict()) if r.fit is not None and r.converged else None,
+                 "robust": clean(r.robust.to_dict()) if r.robust is not None and r.converged else None}
                 for name, r in zip(self.names, self.results)
             ],
             "tests": [t.to_dict() for t in self.tests],
@@ -51,7 +55,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     """Fit every model to the same rows (complete on all their variables) and test each nested pair."""
     if len(models) < 2:
         raise OptionError("comparing needs at least two models")
-    fit_options = make_options(options)
+    fit_options = replace(make_options(options), normality=False)
     specs = [load_spec(m) for m in models]
     frame, source = load_frame(data)
     frame = frame.set_axis([str(c) for c in frame.columns], axis=1)
@@ -64,8 +68,10 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     dropped = len(frame) - len(complete)
     names = _unique_names(specs)
     results = []
+    data_groups = []
     for spec in specs:
         groups, _ = moments_for(spec, complete, source, group, reference_group)
+        data_groups.append(groups)
         results.append(fit_moments(spec, groups, fit_options, group_column=group))
     tests: list[DifferenceTest] = []
     not_nested: list[NotNested] = []
@@ -75,12 +81,23 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             if not (results[a].converged and results[b].converged):
                 not_nested.append(NotNested(names[a], names[b], "a model did not converge"))
                 continue
-            nested, reason = is_nested(results[a], specs[b], results[b])
+            nested, reason, m10 = is_nested(results[a], specs[b], results[b])
             if nested:
                 tests.append(difference_test(results[a], results[b], names[a], names[b]))
+                if results[a].robust is not None and results[b].robust is not None:
+                    c10 = scaling_at(m10, data_groups[b], results[b].fit.df)
+                    tests.extend(scaled_difference_tests(results[a], results[b], names[a], names[b], c10))
             else:
                 not_nested.append(NotNested(names[a], names[b], reason))
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped)
+
+
+def scaling_at(m10, groups, df: int) -> float | None:
+    """The general model's Satorra-Bentler scaling factor at the restricted model's estimates (M10)."""
+    if df <= 0:
+        return None
+    likelihood = NormalLikelihood(m10.model, [ordered_moments(m, m10.table.observed) for _, m in groups])
+    return robust_parts(m10.model, m10.theta, likelihood)[1] / df
 
 
 def _df(result: FitResult) -> float:

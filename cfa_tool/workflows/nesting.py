@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from scipy import stats
 
 from cfa_tool.data.moments import SampleMoments
-from cfa_tool.fitting import FitOptions, estimate
+from cfa_tool.fitting import Estimation, FitOptions, estimate
 from cfa_tool.language.spec import Spec
 from cfa_tool.results import FitResult, clean
 
@@ -43,6 +43,31 @@ def difference_test(restricted: FitResult, general: FitResult, restricted_name: 
     return DifferenceTest(restricted_name, general_name, diff, ddf, p, "likelihood ratio", r.cfi - g.cfi, r.rmsea - g.rmsea)
 
 
+def scaled_difference_tests(restricted: FitResult, general: FitResult, restricted_name: str, general_name: str,
+                            general_scaling_at_restricted: float | None) -> list[DifferenceTest]:
+    """Scaled difference tests for Satorra-Bentler fits.
+
+    2001: c_d = (df0 c0 - df1 c1) / (df0 - df1), T_d = (T0 - T1) / c_d (Satorra & Bentler 2001),
+    which can be negative; 2010: c1 replaced by the general model's scaling factor evaluated at
+    the restricted model's estimates, which keeps c_d positive (Satorra & Bentler 2010).
+    """
+    r, g = restricted.fit, general.fit
+    rr, gr = restricted.robust, general.robust
+    ddf = r.df - g.df
+    out = []
+    delta_cfi = rr.cfi_robust - gr.cfi_robust
+    delta_rmsea = rr.rmsea_robust - gr.rmsea_robust
+    for method, c1 in (("Satorra-Bentler 2001 scaled difference", gr.scaling_factor),
+                       ("Satorra-Bentler 2010 strictly positive scaled difference", general_scaling_at_restricted)):
+        if c1 is None:
+            continue
+        cd = (r.df * rr.scaling_factor - g.df * c1) / ddf
+        diff = (r.chi_square - g.chi_square) / cd if cd > 0 else float("nan")
+        p = float(stats.chi2.sf(max(diff, 0.0), ddf)) if cd > 0 else float("nan")
+        out.append(DifferenceTest(restricted_name, general_name, diff, ddf, p, method, delta_cfi, delta_rmsea))
+    return out
+
+
 def implied_moments(result: FitResult) -> list[tuple[str | None, SampleMoments]]:
     """Each group's model-implied moments, as if they were data of the same size."""
     out = []
@@ -53,22 +78,23 @@ def implied_moments(result: FitResult) -> list[tuple[str | None, SampleMoments]]
     return out
 
 
-def is_nested(restricted: FitResult, general_spec: Spec, general: FitResult) -> tuple[bool, str]:
-    """Whether ``restricted`` is nested in ``general``, with the reason when it is not."""
+def is_nested(restricted: FitResult, general_spec: Spec, general: FitResult) -> tuple[bool, str, Estimation | None]:
+    """Whether ``restricted`` is nested in ``general``, the reason when it is not, and the
+    general model fitted to the restricted model's implied moments (Satorra & Bentler's M10)."""
     if set(restricted.observed) != set(general.observed):
-        return False, "the models use different variables, so they are not fitted to the same covariance matrix"
+        return False, "the models use different variables, so they are not fitted to the same covariance matrix", None
     if restricted.multigroup != general.multigroup:
-        return False, "one model is fitted in groups and the other is not"
+        return False, "one model is fitted in groups and the other is not", None
     if restricted.fit.df == general.fit.df:
         same = abs(restricted.fit.chi_square - general.fit.chi_square) < 1e-6 * max(1.0, general.fit.chi_square)
         return False, "the models have the same degrees of freedom" + (
-            " and the same chi-square: they are probably equivalent models" if same else ", so neither is a restricted form of the other")
+            " and the same chi-square: they are probably equivalent models" if same else ", so neither is a restricted form of the other"), None
     if restricted.fit.df < general.fit.df:
-        return False, "the first model does not have more degrees of freedom than the second"
+        return False, "the first model does not have more degrees of freedom than the second", None
     est = estimate(general_spec, implied_moments(restricted), FitOptions(), start=general.theta)
     if not est.converged:
-        return False, "the nesting check did not converge"
+        return False, "the nesting check did not converge", None
     if est.value > NESTING_TOLERANCE:
         return False, (f"the second model cannot reproduce the first model's implied covariances "
-                       f"(discrepancy {est.value:.2g}), so the first is not a special case of it")
-    return True, ""
+                       f"(discrepancy {est.value:.2g}), so the first is not a special case of it"), None
+    return True, "", est

@@ -12,7 +12,7 @@ directions (double cross-validation; Cudeck & Browne 1983).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 import numpy as np
@@ -67,7 +67,7 @@ def _moments(spec: Spec, frame: pd.DataFrame, source: str) -> SampleMoments:
 
 
 def replicate_moments(spec: Spec, calibration: SampleMoments, validation: SampleMoments, **options) -> Replication:
-    fit_options = make_options(options)
+    fit_options = replace(make_options(options), normality=False)
     cal = fit_moments(spec, calibration, fit_options)
     if not cal.converged:
         raise EstimationError(f"the model did not converge in the calibration sample ({cal.message})")
