@@ -9,7 +9,7 @@ import pandas as pd
 
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.matching import check_columns
-from cfa_tool.data.moments import SampleMoments, sample_moments
+from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
 from cfa_tool.data.readers import read_table
 from cfa_tool.errors import OptionError
 from cfa_tool.fitting import FitOptions, fit_moments
@@ -53,16 +53,16 @@ def read_inputs(model: str | Path | Spec, data: pd.DataFrame | str | Path) -> tu
 
 
 def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,
-                reference_group: str | None = None) -> tuple[list[tuple[str | None, SampleMoments]], list[str]]:
+                reference_group: str | None = None, missing: str = "listwise") -> tuple[list[tuple[str | None, SampleMoments]], list[str]]:
     """Per-group (or single) sample moments of the model variables, with notes on rows left out."""
     notes: list[str] = []
     if group is None:
         if reference_group is not None:
             raise OptionError("a reference group needs a group column")
-        return [(None, sample_moments(frame, spec.observed_names, source))], notes
+        return [(None, sample_moments(frame, spec.observed_names, source, missing=missing))], notes
     if group in spec.observed_names:
         raise OptionError(f"'{group}' is an indicator in the model and cannot also be the group column")
-    groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group)
+    groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing)
     if no_group:
         notes.append(f"{no_group} rows have no value in the group column '{group}' and were left out")
     return groups, notes
@@ -88,11 +88,15 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | 
     """
     fit_options = make_options(options)
     spec, frame, source = read_inputs(model, data)
-    groups, notes = moments_for(spec, frame, source, group, reference_group)
+    groups, notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
     result = fit_moments(spec, groups, fit_options, group_column=group)
-    if notes:
-        result = replace(result, warnings=tuple(notes) + result.warnings)
-    return result
+    summary = missing_summary(frame, spec.observed_names)
+    if fit_options.missing == "full-information":
+        dropped = sum(m.rows_dropped for _, m in groups)
+        if dropped:
+            notes.append(f"{dropped} rows answered none of the model variables and were left out")
+    return replace(result, warnings=tuple(notes) + result.warnings,
+                   missing_data=summary if summary["n_patterns"] > 1 or not all(summary["coverage"].values()) else None)
 
 
 def make_options(options: dict) -> FitOptions:

@@ -91,6 +91,8 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--mi-top", type=int, default=None, metavar="N", help="show at most N modification indices")
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
     _add_test_option(p)
+    p.add_argument("--missing", choices=("listwise", "full-information"), default="listwise",
+                   help="rows with missing answers: left out (listwise, the default) or used by full-information ML")
 
 
 def _version() -> str:
@@ -218,7 +220,8 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
 
     _check_output(args, [model, data])
     result = fit(model, data, group=args.group, reference_group=args.reference_group, information=args.information,
-                 mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=args.test)
+                 mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=args.test,
+                 missing=args.missing)
     if not result.converged:
         raise EstimationError(
             f"the estimation did not converge ({result.message}); try start values closer to the expected solution "

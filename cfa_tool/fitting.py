@@ -20,7 +20,10 @@ from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments
 from cfa_tool.errors import OptionError
+from cfa_tool.data.moments import MISSING_CHOICES
+from cfa_tool.estimation.fiml import MissingDataLikelihood, fiml_baseline, fiml_log_likelihood
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood
+from cfa_tool.estimation.patterns import pattern_data
 from cfa_tool.estimation.optimizer import minimise
 from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
 from cfa_tool.inference.standard_errors import observed_information, parameter_covariance, wald_inference
@@ -43,7 +46,8 @@ class FitOptions:
     mi_top: int | None = None
     max_iterations: int = 500
     test: str = "normal"
-    normality: bool = True  # Mardia's tests (N^2 work: workflows that refit many times turn them off)
+    normality: bool = True  # Mardia's tests (workflows that refit many times turn them off)
+    missing: str = "listwise"
 
     def __post_init__(self) -> None:
         if self.test not in TEST_CHOICES:
@@ -52,6 +56,10 @@ class FitOptions:
             raise OptionError(f"information must be one of {', '.join(INFORMATION_CHOICES)}, not '{self.information}'")
         if self.mi_top is not None and self.mi_top < 0:
             raise OptionError("the number of modification indices to show cannot be negative")
+        if self.missing not in MISSING_CHOICES:
+            raise OptionError(f"missing must be one of {', '.join(MISSING_CHOICES)}, not '{self.missing}'")
+        if self.missing == "full-information" and self.test != "normal":
+            raise OptionError("the Satorra-Bentler test needs complete rows; it is not available with full-information ML")
         if self.max_iterations < 1:
             raise OptionError("the iteration limit must be at least 1")
 
@@ -80,11 +88,17 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
              start: np.ndarray | None = None) -> Estimation:
     """Build the model and minimise the ML discrepancy (no standard errors, no indices)."""
     multi = len(groups) > 1 or groups[0][0] is not None
-    table = build_parameter_table(spec, tuple(label for label, _ in groups) if multi else None)
+    fiml = options.missing == "full-information"
+    table = build_parameter_table(spec, tuple(label for label, _ in groups) if multi else None, mean_structure=fiml)
     check_counting_rule(spec, table)
     model = StructuredModel(table)
     moments = [ordered_moments(m, table.observed) for _, m in groups]
-    likelihood = NormalLikelihood(model, moments)
+    if fiml:
+        patterns = [pattern_data(gm.rows) for gm in moments]
+        likelihood = MissingDataLikelihood(model, patterns, [(gm.mean, gm.covariance) for gm in moments],
+                                           [GroupMoments(gm.covariance, gm.mean, gm.n_obs) for gm in moments])
+    else:
+        likelihood = NormalLikelihood(model, moments)
     if start is None or len(start) != table.n_free:
         cov, mean = pooled([m for _, m in groups])
         order = [groups[0][1].names.index(n) for n in table.observed]
@@ -105,7 +119,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
            group_column: str | None = None) -> FitResult:
     """Standard errors, fit indices, standardized values, modification indices and warnings."""
     table, model, likelihood, theta = est.table, est.model, est.likelihood, est.theta
-    multi = table.mean_structure
+    multi = table.multigroup
+    means = table.mean_structure
     n_total = likelihood.n_total
     values = model.entry_values(theta)
     codes, rows, cols = table.entry_arrays()
@@ -136,17 +151,23 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         evaluation = likelihood.evaluate(theta)
         information = evaluation.information
         check_information_rank(information, table.free_labels)
-        if options.information == "observed":
-            information = observed_information(lambda t: likelihood.evaluate(t).gradient, theta)
+        if options.information == "observed" or not likelihood.complete_data:
+            # with incomplete data the observed information is the one valid under MAR (Kenward & Molenberghs 1998)
+            gradient = getattr(likelihood, "gradient", None) or (lambda t: likelihood.evaluate(t).gradient)
+            information = observed_information(gradient, theta)
         cov_theta = parameter_covariance(information, n_total)
         if robust_wanted:
             cov_theta, trace_ug = robust_parts(model, theta, likelihood)
         inference = wald_inference(values, model.J, cov_theta)
         per_group = []
         for g, gm in enumerate(likelihood.groups):
-            dev = gm.mean - mats[g].implied_mean() if multi else None
+            dev = gm.mean - mats[g].implied_mean() if means else None
             per_group.append((gm.covariance, mats[g].implied_covariance(), gm.n_obs, dev))
-        fit = fit_indices(per_group, est.value, table.n_free, multi)
+        if likelihood.complete_data:
+            fit = fit_indices(per_group, est.value, table.n_free, means)
+        else:
+            fit = fit_indices(per_group, est.value, table.n_free, means, log_likelihood=fiml_log_likelihood(likelihood, theta),
+                              baseline=fiml_baseline(likelihood))
         if robust_wanted:
             robust = robust_fit(fit.chi_square, fit.df, trace_ug, fit.baseline_chi_square, fit.baseline_df,
                                 baseline_trace(likelihood), n_total, table.n_groups)
@@ -198,7 +219,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 implied_covariance=sigma,
                 residual_correlations=correlation_residuals(gm.covariance, sigma),
                 sample_mean=gm.mean,
-                implied_mean=mats[g].implied_mean() if multi else None,
+                implied_mean=mats[g].implied_mean() if means else None,
                 normality=mardia(gm.rows) if options.normality and gm.rows is not None else None,
             )
         )
@@ -216,7 +237,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         model_name=spec.title or spec.source,
         model_source=spec.source,
         model_text=spec.text,
-        estimator=ESTIMATOR + (" with Satorra-Bentler scaled test and robust standard errors" if robust_wanted else ""),
+        estimator=ESTIMATOR + (" with Satorra-Bentler scaled test and robust standard errors" if robust_wanted else "")
+        + ("" if likelihood.complete_data else " (full information, incomplete rows included)"),
         converged=est.converged,
         iterations=est.iterations,
         message=est.message,

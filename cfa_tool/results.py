@@ -136,6 +136,7 @@ class FitResult:
     mi_threshold: float = DEFAULT_MI_THRESHOLD
     mi_top: int | None = None
     theta: np.ndarray | None = field(repr=False, default=None)
+    missing_data: dict | None = None  # coverage per item and missing-data patterns
 
     # -- single-group conveniences (the first group when there are several)
     @property
@@ -206,6 +207,7 @@ class FitResult:
             out["residuals"] = self.groups[0].residuals_dict(self.observed)
             normality = self.groups[0].normality
             out["normality"] = clean(normality.to_dict()) if normality is not None else None
+        out["missing_data"] = clean(self.missing_data) if self.missing_data is not None else None
         out["modification_indices"] = [clean(m.to_dict()) for m in self.reported_modification_indices()]
         out["warnings"] = list(self.warnings)
         return out

@@ -131,8 +131,13 @@ def baseline_chi_square(S: np.ndarray, n_obs: int) -> tuple[float, int]:
 
 
 def fit_indices(groups: list[tuple[np.ndarray, np.ndarray, int, np.ndarray | None]], discrepancy: float, n_free: int,
-                mean_structure: bool = False) -> FitIndices:
-    """Fit indices from each group's (S, Sigma, N_g, m - mu or None) and the minimised discrepancy."""
+                mean_structure: bool = False, log_likelihood: float | None = None,
+                baseline: tuple[float, int] | None = None) -> FitIndices:
+    """Fit indices from each group's (S, Sigma, N_g, m - mu or None) and the minimised discrepancy.
+
+    With incomplete data, S and m are the saturated (EM) estimates, and the caller gives the
+    casewise log-likelihood and the baseline chi-square, which the moments alone do not determine.
+    """
     G = len(groups)
     p = groups[0][0].shape[0]
     n_obs = sum(g[2] for g in groups)
@@ -149,6 +154,10 @@ def fit_indices(groups: list[tuple[np.ndarray, np.ndarray, int, np.ndarray | Non
         base_df += d
         loglik += normal_log_likelihood(S, sigma, n, dev if mean_structure else None)
         srmr += n / n_obs * srmr_value(S, sigma)
+    if log_likelihood is not None:
+        loglik = log_likelihood
+    if baseline is not None:
+        base_chi, base_df = baseline
     rmsea = rmsea_value(chi, df, n_obs) * np.sqrt(G)
     low, high = rmsea_interval(chi, df, n_obs)
     return FitIndices(

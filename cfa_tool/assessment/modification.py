@@ -19,11 +19,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.linalg import cho_factor, cho_solve, solve_triangular
 
 from cfa_tool.assessment.standardized import standardize_entries
 from cfa_tool.estimation.linalg import scaled_solve
-from cfa_tool.estimation.ml import NormalLikelihood, whiten
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable
 
@@ -89,8 +87,7 @@ def constrained_entries(table: ParameterTable, kinds: tuple[str, ...], group: in
     ]
 
 
-def score_tests(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood,
-                candidates: list[list[Candidate]]) -> list[ModificationIndex]:
+def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]]) -> list[ModificationIndex]:
     """MI and EPC for each group's candidate entries (``candidates[g]``)."""
     table = model.table
     q = len(theta)
@@ -98,16 +95,9 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood: NormalLik
     parts = []
     for g, weight in enumerate(likelihood.weights):
         mats = model.matrices(theta, g)
-        sigma = mats.implied_covariance()
-        chol, _ = cho_factor(sigma, lower=True)
-        sigma_inv = cho_solve((chol, True), np.eye(len(sigma)))
-        moments = likelihood.groups[g]
-        dev = moments.mean - mats.implied_mean() if likelihood.means else np.zeros(len(sigma))
-        M = sigma_inv @ (sigma - moments.covariance - np.outer(dev, dev)) @ sigma_inv
+        group = likelihood.group_parts(theta, g)
         t_sigma, t_mu = model.jacobian(theta, g)
-        X_t = whiten(chol, t_sigma)
-        W_t = solve_triangular(chol, t_mu.T, lower=True)
-        H_tt += weight * (X_t @ X_t.T + (2.0 * W_t.T @ W_t if likelihood.means else 0.0))
+        H_tt += weight * group.information(t_sigma, t_mu)
         cands = candidates[g]
         if not cands:
             continue
@@ -115,15 +105,9 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood: NormalLik
         rows = np.array([c[3] for c in cands])
         cols = np.array([c[4] for c in cands])
         c_sigma, c_mu = entry_derivatives(mats, codes, rows, cols)
-        X_c = whiten(chol, c_sigma)
-        H_ct = X_c @ X_t.T
-        h_cc = np.einsum("ij,ij->i", X_c, X_c)
-        d = c_sigma.reshape(len(cands), -1) @ M.ravel()
-        if likelihood.means:
-            W_c = solve_triangular(chol, c_mu.T, lower=True)
-            H_ct = H_ct + 2.0 * W_c.T @ W_t
-            h_cc = h_cc + 2.0 * np.einsum("ij,ij->j", W_c, W_c)
-            d = d - 2.0 * c_mu @ (sigma_inv @ dev)
+        H_ct = group.information(c_sigma, c_mu, t_sigma, t_mu)
+        h_cc = np.diag(group.information(c_sigma, c_mu))
+        d = group.gradient(c_sigma, c_mu)
         parts.append((g, cands, codes, rows, cols, mats, weight * d, weight * H_ct, weight * h_cc))
     out: list[ModificationIndex] = []
     n = likelihood.n_total
@@ -133,7 +117,7 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood: NormalLik
         mi = np.where(ok, 0.5 * n * d**2 / np.where(ok, h, 1.0), np.nan)
         epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
         std_epc, _ = standardize_entries(mats, codes, rows, cols, epc)
-        label = table.groups[g] if table.mean_structure else None
+        label = table.groups[g] if table.multigroup else None
         out.extend(
             ModificationIndex(kind, variables, float(mi[k]), float(epc[k]), float(std_epc[k]), label)
             for k, (kind, variables, *_rest) in enumerate(cands)

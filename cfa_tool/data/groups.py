@@ -36,14 +36,14 @@ def _label(value) -> str:
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
-                  reference: str | None = None) -> tuple[list[tuple[str, SampleMoments]], int]:
+                  reference: str | None = None, missing: str = "listwise") -> tuple[list[tuple[str, SampleMoments]], int]:
     """Per-group moments (reference group first) and the number of rows without a group value."""
     labels = group_labels(frame, column, source, reference)
     keys = frame[column].map(lambda v: None if pd.isna(v) else _label(v))
     out = []
     for label in labels:
         part = frame.loc[(keys == label).to_numpy()]
-        out.append((label, sample_moments(part, names, source, group=f"'{label}' of {column}")))
+        out.append((label, sample_moments(part, names, source, group=f"'{label}' of {column}", missing=missing)))
     return out, int(keys.isna().sum())
 
 

@@ -44,30 +44,21 @@ def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) ->
     return np.column_stack(columns) if columns else np.zeros((len(frame), 0))
 
 
-def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, group: str | None = None) -> SampleMoments:
-    """Listwise-complete moments of the model variables."""
-    file_source = source
-    if group is not None:
-        source = f"{source} (group {group})"
+MISSING_CHOICES = ("listwise", "full-information")
+
+
+def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
     values = numeric_columns(frame, names, source)
     infinite = np.isinf(values)
     if infinite.any():
         row, col = np.argwhere(infinite)[0]
         raise DataError(f"{source}: column '{names[col]}' has an infinite value in data row {row + 1}")
-    complete = ~np.isnan(values).any(axis=1)
-    data = values[complete]
-    n, p = data.shape
-    if n == 0:
-        raise DataError(f"{source}: no row has answers on all {p} model variables, so nothing is left to analyse")
-    if n <= p:
-        raise DataError(
-            f"{source}: {n} complete rows for {p} variables; the covariance matrix needs more rows than variables "
-            f"(and a factor analysis far more)"
-        )
-    means = data.mean(axis=0)
-    centred = data - means
-    cov = centred.T @ centred / n
-    sds = np.sqrt(np.diag(cov))
+    return values
+
+
+def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], source: str) -> None:
+    """Constant columns and exactly collinear columns are errors that name the columns."""
+    sds = np.sqrt(np.clip(np.diag(cov), 0.0, None))
     for j, sd in enumerate(sds):
         if sd <= 1e-12 * max(1.0, abs(means[j])):
             raise DataError(f"{source}: column '{names[j]}' has the same value ({means[j]:g}) in every row used, so it carries no information")
@@ -80,4 +71,68 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
             f"{source}: the covariance matrix is singular: the columns {', '.join(repr(v) for v in involved)} are exact linear "
             f"combinations of each other (for example one is the sum of others); drop one of them"
         )
+
+
+def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, group: str | None = None,
+                   missing: str = "listwise") -> SampleMoments:
+    """Moments of the model variables: of the complete rows (listwise deletion), or, with
+    ``missing='full-information'``, the EM estimates from every row with at least one answer
+    (the rows themselves are kept for the casewise likelihood)."""
+    file_source = source
+    if group is not None:
+        source = f"{source} (group {group})"
+    values = _numeric_rows(frame, names, source)
+    p = values.shape[1]
+    if missing == "full-information":
+        return _incomplete_moments(values, names, source, file_source, group, len(frame))
+    complete = ~np.isnan(values).any(axis=1)
+    data = values[complete]
+    n = len(data)
+    if n == 0:
+        raise DataError(f"{source}: no row has answers on all {p} model variables, so nothing is left to analyse")
+    if n <= p:
+        raise DataError(
+            f"{source}: {n} complete rows for {p} variables; the covariance matrix needs more rows than variables "
+            f"(and a factor analysis far more)"
+        )
+    means = data.mean(axis=0)
+    centred = data - means
+    cov = centred.T @ centred / n
+    _check_moments(cov, means, names, source)
     return SampleMoments(tuple(names), cov, means, n, len(frame), int((~complete).sum()), file_source, group, data)
+
+
+def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int) -> SampleMoments:
+    from cfa_tool.estimation.em import em_saturated
+    from cfa_tool.estimation.patterns import pattern_data
+
+    answered = ~np.isnan(values).all(axis=1)
+    data = values[answered]
+    n, p = data.shape
+    if n <= p:
+        raise DataError(f"{source}: {n} rows with any answer for {p} variables; the analysis needs more rows than variables")
+    counts = (~np.isnan(data)).sum(axis=0)
+    for j, c in enumerate(counts):
+        if c < 2:
+            raise DataError(f"{source}: column '{names[j]}' has {c} answers; each variable needs at least two")
+    observed = ~np.isnan(data)
+    together = observed.astype(float).T @ observed.astype(float)
+    i, j = np.unravel_index(np.argmin(together), together.shape)
+    if together[i, j] == 0:
+        raise DataError(f"{source}: no row answers both '{names[i]}' and '{names[j]}', so their covariance cannot be estimated")
+    mu, sigma, _ = em_saturated(pattern_data(data))
+    _check_moments(sigma, mu, names, source)
+    return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data)
+
+
+def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20) -> dict:
+    """Coverage of each variable and the most frequent missing-data patterns ('x' answered, '.' missing)."""
+    observed = frame[list(names)].notna().to_numpy()
+    coverage = {name: float(v) for name, v in zip(names, observed.mean(axis=0))}
+    patterns, counts = np.unique(observed, axis=0, return_counts=True)
+    order = np.argsort(-counts, kind="stable")[:limit]
+    return {
+        "coverage": coverage,
+        "patterns": [{"pattern": "".join("x" if v else "." for v in patterns[k]), "rows": int(counts[k])} for k in order],
+        "n_patterns": int(len(patterns)),
+    }

@@ -47,6 +47,35 @@ class GroupMoments:
     rows: np.ndarray | None = None  # raw complete rows, when robust statistics are wanted
 
 
+class NormalParts:
+    """One group's pieces of the complete-data discrepancy at theta: enough to
+    differentiate it along any direction (model parameters or candidates)."""
+
+    def __init__(self, chol: np.ndarray, sigma_inv: np.ndarray, M: np.ndarray, mean_gradient: np.ndarray | None):
+        self.chol = chol
+        self.sigma_inv = sigma_inv
+        self.M = M  # Sigma^-1 (Sigma - S - d d') Sigma^-1
+        self.mean_gradient = mean_gradient  # -2 Sigma^-1 d, or None without a mean structure
+
+    def gradient(self, d_sigma: np.ndarray, d_mu: np.ndarray) -> np.ndarray:
+        g = d_sigma.reshape(len(d_sigma), -1) @ self.M.ravel()
+        if self.mean_gradient is not None:
+            g = g + d_mu @ self.mean_gradient
+        return g
+
+    def information(self, x_sigma: np.ndarray, x_mu: np.ndarray, y_sigma: np.ndarray | None = None,
+                    y_mu: np.ndarray | None = None) -> np.ndarray:
+        """tr(Sigma^-1 X Sigma^-1 Y) (+ 2 x_mu' Sigma^-1 y_mu with means); Y = X when not given."""
+        X = whiten(self.chol, x_sigma)
+        Y = X if y_sigma is None else whiten(self.chol, y_sigma)
+        out = X @ Y.T
+        if self.mean_gradient is not None:
+            Wx = solve_triangular(self.chol, x_mu.T, lower=True, check_finite=False)
+            Wy = Wx if y_mu is None else solve_triangular(self.chol, y_mu.T, lower=True, check_finite=False)
+            out = out + 2.0 * Wx.T @ Wy
+        return out
+
+
 class NormalLikelihood:
     """The ML discrepancy summed over groups, weighted by group size.
 
@@ -54,6 +83,8 @@ class NormalLikelihood:
     with d_g = m_g - mu_g when the model has a mean structure (Sorbom 1974), so
     that N F is the likelihood-ratio chi-square against the saturated model.
     """
+
+    complete_data = True
 
     def __init__(self, model: StructuredModel, groups: list[GroupMoments]):
         self.model = model
@@ -89,41 +120,45 @@ class NormalLikelihood:
     def value(self, theta: np.ndarray) -> float:
         return float(sum(w * self.group_discrepancy(theta, g) for g, w in enumerate(self.weights)))
 
+    def group_parts(self, theta: np.ndarray, g: int) -> NormalParts | None:
+        mats = self.model.matrices(theta, g)
+        sigma = mats.implied_covariance()
+        try:
+            c = cho_factor(sigma, lower=True, check_finite=False)
+        except np.linalg.LinAlgError:
+            return None
+        if np.any(np.diag(c[0]) <= 0) or not np.all(np.isfinite(c[0])):
+            return None
+        sigma_inv = cho_solve(c, np.eye(self.p), check_finite=False)
+        target = self.groups[g].covariance
+        mean_gradient = None
+        if self.means:
+            dev = self.groups[g].mean - mats.implied_mean()
+            target = target + np.outer(dev, dev)
+            mean_gradient = -2.0 * sigma_inv @ dev
+        return NormalParts(c[0], sigma_inv, sigma_inv @ (sigma - target) @ sigma_inv, mean_gradient)
+
     def evaluate(self, theta: np.ndarray) -> Evaluation | None:
         """Value, gradient and expected information at theta (None if some Sigma is not positive definite)."""
-        q = len(theta)
-        value = 0.0
-        gradient = np.zeros(q)
-        information = np.zeros((q, q))
-        for g, w in enumerate(self.weights):
-            mats = self.model.matrices(theta, g)
-            sigma = mats.implied_covariance()
-            try:
-                c = cho_factor(sigma, lower=True, check_finite=False)
-            except np.linalg.LinAlgError:
-                return None
-            if np.any(np.diag(c[0]) <= 0) or not np.all(np.isfinite(c[0])):
-                return None
-            S = self.groups[g].covariance
-            sigma_inv = cho_solve(c, np.eye(self.p), check_finite=False)
-            f = 2.0 * float(np.sum(np.log(np.diag(c[0])))) + float(np.sum(sigma_inv * S)) - self.logdet_S[g] - self.p
-            target = S
-            d_sigma, d_mu = self.model.jacobian(theta, g)
-            if self.means:
-                dev = self.groups[g].mean - mats.implied_mean()
-                f += float(dev @ sigma_inv @ dev)
-                target = S + np.outer(dev, dev)
-            M = sigma_inv @ (sigma - target) @ sigma_inv
-            grad = d_sigma.reshape(q, -1) @ M.ravel()
-            info = expected_information(c[0], d_sigma)
-            if self.means:
-                grad -= 2.0 * d_mu @ (sigma_inv @ dev)
-                W = solve_triangular(c[0], d_mu.T, lower=True, check_finite=False)
-                info += 2.0 * W.T @ W
-            value += w * f
-            gradient += w * grad
-            information += w * info
-        return Evaluation(value, gradient, information)
+        return evaluate_groups(self, theta)
+
+
+def evaluate_groups(likelihood, theta: np.ndarray) -> Evaluation | None:
+    """Sum value, gradient and information over groups from each group's parts."""
+    q = len(theta)
+    gradient = np.zeros(q)
+    information = np.zeros((q, q))
+    for g, w in enumerate(likelihood.weights):
+        parts = likelihood.group_parts(theta, g)
+        if parts is None:
+            return None
+        d_sigma, d_mu = likelihood.model.jacobian(theta, g)
+        gradient += w * parts.gradient(d_sigma, d_mu)
+        information += w * parts.information(d_sigma, d_mu)
+    value = likelihood.value(theta)
+    if not np.isfinite(value):
+        return None
+    return Evaluation(value, gradient, information)
 
 
 def whiten(chol_lower: np.ndarray, delta: np.ndarray) -> np.ndarray:

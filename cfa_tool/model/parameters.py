@@ -68,6 +68,7 @@ class ParameterTable:
     free_labels: tuple[str, ...]  # one label per theta element (its first parameter)
     groups: tuple[str, ...] = ("",)
     mean_structure: bool = False
+    multigroup: bool = False
 
     @property
     def p(self) -> int:
@@ -118,13 +119,15 @@ def _fail(spec: Spec, message: str, ref_or_loc) -> ModelError:
     return ModelError(message, loc, spec.source_line(loc))
 
 
-def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None) -> ParameterTable:
+def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mean_structure: bool = False) -> ParameterTable:
     """Lay out the matrices and decide which entries are free, fixed or tied.
 
-    ``groups``: group labels for a multi-group model (with a mean structure);
-    None for one group without means.
+    ``groups``: group labels for a multi-group model (always with a mean
+    structure); None for one group, which has intercepts and factor means
+    only when ``mean_structure`` (as full-information ML needs).
     """
     multi = groups is not None
+    means = multi or mean_structure
     group_labels = tuple(groups) if multi else ("",)
     G = len(group_labels)
     latent = spec.factor_names
@@ -132,7 +135,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None) -> 
     lat_ix = {n: i for i, n in enumerate(latent)}
     obs_ix = {n: i for i, n in enumerate(observed)}
     exo = exogenous_factors(spec)
-    _check_group_use(spec, group_labels, multi)
+    _check_group_use(spec, group_labels, multi, means)
 
     # ---- every entry of every group, keyed (group, kind, names)
     entries: dict[tuple, dict] = {}
@@ -165,7 +168,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None) -> 
                 continue
             ix = lat_ix if a in lat_ix else obs_ix
             add(g, ("covariance", pair.key()), "P" if a in lat_ix else "T", max(ix[a], ix[b]), min(ix[a], ix[b]), (a, b))
-        if multi:
+        if means:
             for x in observed:
                 add(g, ("intercept", (x,)), "N", obs_ix[x], 0, (x,))
             for f in latent:
@@ -338,7 +341,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None) -> 
             )
         )
     return ParameterTable(observed, latent, tuple(parameters), n_free, start, lower, upper, tuple(free_labels),
-                          group_labels, multi)
+                          group_labels, means, multi)
 
 
 def _entry_kind(entry: dict) -> str:
@@ -365,14 +368,15 @@ def _mean_identified(spec, factor, entries, tied_across_groups, lat_ix) -> bool:
     return False
 
 
-def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool) -> None:
+def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, means: bool) -> None:
     refs = [r for r in all_refs(spec) if r.group is not None]
     mean_refs = [r for r in all_refs(spec) if r.kind in ("intercept", "mean")]
+    if mean_refs and not means:
+        raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only with groups (--group COLUMN) "
+                          f"or with missing data (--missing full-information)", mean_refs[0])
     if not multi:
         if refs:
             raise _fail(spec, f"'in group {refs[0].group}' needs groups: give the group column (--group COLUMN)", refs[0])
-        if mean_refs:
-            raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only with groups (--group COLUMN)", mean_refs[0])
         return
     for ref in refs:
         if ref.group not in group_labels:

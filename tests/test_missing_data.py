@@ -1,0 +1,135 @@
+"""Full-information ML for incomplete rows, the EM saturated model, and missing-data summaries."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.estimation.em import em_saturated
+from cfa_tool.estimation.patterns import pattern_data
+from tests.conftest import THREE_FACTORS
+from tests.test_cli import DATA, MODEL, run
+
+ITEMS = [f"x{i}" for i in range(1, 10)]
+
+
+@pytest.fixture(scope="module")
+def hs_holes(hs_data):
+    """Holzinger-Swineford with 10% of the test scores removed completely at random (seeded)."""
+    data = hs_data.copy()
+    values = data[ITEMS].to_numpy().copy()
+    values[np.random.default_rng(1).random(values.shape) < 0.10] = np.nan
+    data[ITEMS] = values
+    return data
+
+
+def test_without_missing_values_fiml_is_ml(hs_data, hs_three):
+    full = cfa_tool.fit(THREE_FACTORS, hs_data, missing="full-information")
+    assert full.fit.chi_square == pytest.approx(hs_three.fit.chi_square, rel=1e-8)
+    assert full.fit.df == hs_three.fit.df
+    assert full.fit.log_likelihood == pytest.approx(hs_three.fit.log_likelihood, rel=1e-10)
+    assert full.fit.baseline_chi_square == pytest.approx(hs_three.fit.baseline_chi_square, rel=1e-8)
+    ml = {(r.kind, r.variables): r.estimate for r in hs_three.estimates}
+    for r in full.estimates:
+        if r.kind in ml:
+            assert r.estimate == pytest.approx(ml[(r.kind, r.variables)], rel=1e-6, abs=1e-9)
+    intercepts = {r.variables[0]: r.estimate for r in full.estimates if r.kind == "intercept"}
+    assert intercepts["x1"] == pytest.approx(hs_data["x1"].mean(), rel=1e-8)
+
+
+def test_fiml_estimates_agree_with_semopy(hs_holes):
+    # semopy's model with a mean structure fitted by ML to incomplete rows is FIML
+    import semopy
+
+    ours = cfa_tool.fit(THREE_FACTORS, hs_holes, missing="full-information")
+    assert ours.converged
+    model = semopy.ModelMeans("visual =~ x1 + x2 + x3\ntextual =~ x4 + x5 + x6\nspeed =~ x7 + x8 + x9")
+    model.fit(hs_holes, obj="ML", solver="L-BFGS-B")
+    table = model.inspect()
+    est = {(r.kind, r.variables): r.estimate for r in ours.estimates}
+    checked = 0
+    for _, row in table.iterrows():
+        if row["op"] == "~" and row["rval"] in ("visual", "textual", "speed"):
+            assert est[("loading", (row["rval"], row["lval"]))] == pytest.approx(row["Estimate"], rel=1e-3)
+            checked += 1
+        elif row["op"] == "~~" and row["lval"] == row["rval"] and row["lval"] in ITEMS:
+            assert est[("residual_variance", (row["lval"],))] == pytest.approx(row["Estimate"], rel=1e-3)
+            checked += 1
+    assert checked == 18
+
+
+def test_em_matches_complete_data_moments_when_nothing_is_missing(hs_data):
+    rows = hs_data[ITEMS].to_numpy(dtype=float)
+    mu, sigma, _ = em_saturated(pattern_data(rows))
+    assert np.allclose(mu, rows.mean(axis=0), rtol=1e-10)
+    assert np.allclose(sigma, np.cov(rows.T, bias=True), rtol=1e-9)
+
+
+def test_em_matches_the_closed_form_for_monotone_data():
+    # Two variables, y missing for part of the rows: the ML estimates have a closed form
+    # (Anderson 1957; Little & Rubin 2002, sec. 7.2).
+    rng = np.random.default_rng(2)
+    x = rng.normal(size=400)
+    y = 0.6 * x + rng.normal(scale=0.8, size=400)
+    y[rng.random(400) < 0.3 + 0.3 * (x > 0)] = np.nan  # missing at random given x
+    rows = np.column_stack([x, y])
+    mu, sigma, _ = em_saturated(pattern_data(rows))
+    seen = ~np.isnan(y)
+    xc, yc = x[seen], y[seen]
+    beta = np.cov(xc, yc, bias=True)[0, 1] / np.var(xc)
+    resid = np.var(yc - beta * xc)
+    mu_x, var_x = x.mean(), x.var()
+    assert mu[0] == pytest.approx(mu_x)
+    assert mu[1] == pytest.approx(yc.mean() + beta * (mu_x - xc.mean()), rel=1e-7)
+    assert sigma[0, 1] == pytest.approx(beta * var_x, rel=1e-7)
+    assert sigma[1, 1] == pytest.approx(resid + beta**2 * var_x, rel=1e-7)
+
+
+def test_fiml_is_less_biased_than_listwise_under_mar():
+    # Missing at random: y4..y6 are removed more often when y1 is high.  Listwise deletion
+    # biases the factor means and variances; FIML does not (Enders 2010, ch. 3).
+    rng = np.random.default_rng(12)
+    n = 4000
+    f = rng.normal(size=n)
+    data = pd.DataFrame({f"y{i}": l * f + rng.normal(scale=0.6, size=n) for i, l in enumerate([1.0, 0.9, 0.8, 1.1, 0.7, 1.0], 1)})
+    drop = rng.random(n) < np.where(data["y1"] > 0.5, 0.7, 0.05)
+    data.loc[drop, ["y4", "y5", "y6"]] = np.nan
+    model = "factor f: y1..y6\n"
+    fiml = cfa_tool.fit(model, data, missing="full-information")
+    listwise = cfa_tool.fit(model, data)
+    var_fiml = [r.estimate for r in fiml.estimates if r.kind == "factor_variance"][0]
+    var_listwise = [r.estimate for r in listwise.estimates if r.kind == "factor_variance"][0]
+    assert abs(var_fiml - 1.0) < 0.08
+    assert abs(var_listwise - 1.0) > 0.2
+    assert any("listwise deletion" in w for w in listwise.warnings)
+
+
+def test_modification_indices_with_incomplete_data(hs_holes):
+    result = cfa_tool.fit(THREE_FACTORS, hs_holes, missing="full-information")
+    top = result.modification_indices[0]
+    # the same local misfit as in the complete data leads the list
+    assert top.variables in (("visual", "x9"), ("x7", "x8"))
+    assert top.index > 20
+
+
+def test_missing_data_summary_and_cli():
+    proc = run("fit", str(MODEL), "--data", str(DATA), "--missing", "full-information", "--json", "-")
+    assert proc.returncode == 0, proc.stderr
+    out = json.loads(proc.stdout)
+    assert out["n_obs"] == 480
+    assert "full information" in out["estimator"]
+    summary = out["missing_data"]
+    assert sum(p["rows"] for p in summary["patterns"]) == 480
+    assert summary["patterns"][0]["pattern"] == "x" * 12 and summary["patterns"][0]["rows"] == 471
+    assert 0.97 < min(summary["coverage"].values()) < 1.0
+
+
+def test_satorra_bentler_is_refused_with_fiml(hs_holes):
+    from cfa_tool.errors import OptionError
+
+    with pytest.raises(OptionError, match="complete rows"):
+        cfa_tool.fit(THREE_FACTORS, hs_holes, missing="full-information", test="satorra-bentler")
