@@ -129,6 +129,19 @@ def group_table(result) -> Table:
     return table
 
 
+def missing_table(result) -> Table | None:
+    summary = result.missing_data
+    if not summary:
+        return None
+    table = _table("Missing answers", [("Pattern of answers (x) and gaps (.), items in model order", "left"), ("Rows", "right")])
+    for pattern in summary["patterns"][:8]:
+        table.add_row(pattern["pattern"], str(pattern["rows"]))
+    low = sorted(summary["coverage"].items(), key=lambda kv: kv[1])[:5]
+    table.caption = f"{summary['n_patterns']} patterns. Lowest coverage: " + ", ".join(f"{name} {100 * share:.1f}%" for name, share in low)
+    table.caption_justify = "left"
+    return table
+
+
 def modification_table(result) -> Table | None:
     rows = result.reported_modification_indices()
     if not rows:
@@ -168,6 +181,9 @@ def render(result, console: Console) -> None:
     status = f"converged in {result.iterations} iterations" if result.converged else f"DID NOT CONVERGE ({result.message})"
     console.print(f"Estimation: {result.estimator}, {status}")
     console.print()
+    missing = missing_table(result)
+    if missing is not None:
+        console.print(missing)
     if result.fit is not None and result.converged:
         console.print(fit_table(result))
         console.print(Text(GUIDE_NOTE, style="italic"))
