@@ -5,12 +5,15 @@ from __future__ import annotations
 from dataclasses import replace
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
-from cfa_tool.data.readers import read_table
+from cfa_tool.data.filters import apply_filters, parse_filter
+from cfa_tool.data.readers import LoadedData, read_data
+from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file, summary_moments
 from cfa_tool.errors import OptionError
 from cfa_tool.fitting import FitOptions, fit_moments
 from cfa_tool.language.parser import parse_model, read_model_file
@@ -31,25 +34,44 @@ def load_spec(model: str | Path | Spec) -> Spec:
     raise OptionError(f"model must be model text, a path or a parsed specification, not {type(model).__name__}")
 
 
-def load_frame(data: pd.DataFrame | str | Path) -> tuple[pd.DataFrame, str]:
+def load_frame(data: pd.DataFrame | str | Path, sheet: str | None = None,
+               missing_codes: tuple[float, ...] = ()) -> tuple[pd.DataFrame, str]:
+    loaded = load_data(data, sheet, missing_codes)
+    return loaded.frame, loaded.source
+
+
+def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = ()) -> LoadedData:
     if isinstance(data, pd.DataFrame):
-        return data, "<data frame>"
+        frame = data
+        if missing_codes:
+            frame = frame.mask(frame.isin(list(missing_codes)))
+        return LoadedData(frame, "<data frame>")
     if isinstance(data, (str, Path)):
-        return read_table(data), str(data)
+        return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes))
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
-def read_inputs(model: str | Path | Spec, data: pd.DataFrame | str | Path) -> tuple[Spec, pd.DataFrame, str]:
-    """Parse the model, read the data and check one against the other."""
+def read_inputs(model: str | Path | Spec, data: pd.DataFrame | str | Path, sheet: str | None = None,
+                missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = ()) -> tuple[Spec, pd.DataFrame, str]:
+    """Parse the model, read the data, apply row filters and check the model against the columns."""
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    return spec, loaded.frame, loaded.source
+
+
+def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=()) -> tuple[Spec, LoadedData, list[str]]:
     spec = load_spec(model)
-    frame, source = load_frame(data)
+    loaded = load_data(data, sheet, missing_codes)
+    frame = loaded.frame
     columns = [str(c) for c in frame.columns]
     if len(set(columns)) != len(columns):
         dup = next(c for c in columns if columns.count(c) > 1)
-        raise OptionError(f"{source}: the column name '{dup}' appears more than once")
+        raise OptionError(f"{loaded.source}: the column name '{dup}' appears more than once")
     frame = frame.set_axis(columns, axis=1)
-    check_columns(spec, columns, source)
-    return spec, frame, source
+    notes: list[str] = []
+    if keep:
+        frame, notes = apply_filters(frame, [parse_filter(k) for k in keep], loaded.source)
+    check_columns(spec, columns, loaded.source)
+    return spec, LoadedData(frame, loaded.source, loaded.variable_labels, loaded.value_labels), notes
 
 
 def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,
@@ -74,29 +96,78 @@ def prepare(model: str | Path | Spec, data: pd.DataFrame | str | Path) -> tuple[
     return spec, sample_moments(frame, spec.observed_names, source)
 
 
-def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None,
-        reference_group: str | None = None, **options) -> FitResult:
+def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None, *, group: str | None = None,
+        reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
+        keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
+        variables: list[str] | None = None, matrix: str = "covariance", sds=None, divisor: str = "n-1",
+        **options) -> FitResult:
     """Fit a confirmatory factor model by maximum likelihood.
 
     ``model``: model text, a path to a model file, or a parsed Spec.
-    ``data``: a DataFrame or a path to a CSV file.
-    ``group``: a column whose values define groups (multi-group fit with a mean
-    structure); ``reference_group``: the group whose factor means are fixed at
-    zero (default: the first label in sorted order).
-    ``options``: ``information`` ('expected' or 'observed'), ``mi_threshold``,
-    ``mi_top``, ``max_iterations``.
+    ``data``: a DataFrame or a path to a data file (CSV/TSV, .xlsx, .sav/.por, .dta, or a
+    ``.stats`` summary-statistics file); ``sheet`` picks an Excel sheet; ``missing_codes``
+    are values that mean 'no answer'; ``keep`` are row filters such as 'district = north'.
+    Instead of data: ``covariance`` (a matrix, or a DataFrame with variable names), ``n_obs``
+    and optionally ``means``, ``variables``, ``matrix='correlation'`` with ``sds``, and
+    ``divisor`` ('n-1' as published, or 'n').
+    ``group``: a column whose values define groups (multi-group fit with a mean structure);
+    ``reference_group``: the group whose factor means are fixed at zero.
+    ``options``: ``information``, ``test``, ``missing``, ``mi_threshold``, ``mi_top``, ``max_iterations``.
     """
     fit_options = make_options(options)
-    spec, frame, source = read_inputs(model, data)
-    groups, notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
+    if covariance is not None or (isinstance(data, (str, Path)) and Path(data).suffix.lower() == SUMMARY_SUFFIX):
+        if group is not None:
+            raise OptionError("groups need raw data; summary statistics describe one group")
+        spec = load_spec(model)
+        if covariance is not None:
+            if data is not None:
+                raise OptionError("give either data or a covariance matrix, not both")
+            moments, notes = _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor)
+        else:
+            moments, notes = read_summary_file(data)
+        check_columns(spec, list(moments.names), moments.source)
+        if fit_options.missing != "listwise" or fit_options.test != "normal":
+            raise OptionError("summary statistics allow only the normal-theory test with complete data")
+        result = fit_moments(spec, moments, replace(fit_options, normality=False))
+        return replace(result, warnings=tuple(notes) + result.warnings)
+    if data is None:
+        raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    frame, source = loaded.frame, loaded.source
+    groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
+    notes += group_notes
     result = fit_moments(spec, groups, fit_options, group_column=group)
     summary = missing_summary(frame, spec.observed_names)
     if fit_options.missing == "full-information":
         dropped = sum(m.rows_dropped for _, m in groups)
         if dropped:
             notes.append(f"{dropped} rows answered none of the model variables and were left out")
+    labels = {
+        "variables": {k: v for k, v in loaded.variable_labels.items() if k in spec.observed_names},
+        "values": {k: v for k, v in loaded.value_labels.items() if k in spec.observed_names},
+    }
     return replace(result, warnings=tuple(notes) + result.warnings,
-                   missing_data=summary if summary["n_patterns"] > 1 or not all(summary["coverage"].values()) else None)
+                   missing_data=summary if summary["n_patterns"] > 1 or not all(summary["coverage"].values()) else None,
+                   labels=labels if labels["variables"] or labels["values"] else None)
+
+
+def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):
+    if n_obs is None:
+        raise OptionError("a covariance matrix needs the number of observations (n_obs)")
+    if isinstance(covariance, pd.DataFrame):
+        names = [str(c) for c in covariance.columns]
+        values = covariance.to_numpy(dtype=float)
+    else:
+        values = np.asarray(covariance, dtype=float)
+        if variables is None:
+            raise OptionError("name the variables of the covariance matrix (variables=[...]) or pass a DataFrame")
+        names = [str(v) for v in variables]
+    if matrix not in ("covariance", "correlation"):
+        raise OptionError(f"matrix must be 'covariance' or 'correlation', not '{matrix}'")
+    if divisor not in ("n-1", "n"):
+        raise OptionError(f"divisor must be 'n-1' or 'n', not '{divisor}'")
+    return summary_moments(names, values, int(n_obs), matrix, None if sds is None else np.asarray(sds, dtype=float),
+                           None if means is None else np.asarray(means, dtype=float), divisor, "<covariance matrix>")
 
 
 def make_options(options: dict) -> FitOptions:
@@ -106,12 +177,18 @@ def make_options(options: dict) -> FitOptions:
         raise OptionError(f"unknown option: {exc}") from None
 
 
-def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None) -> Spec:
+def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, **read_options) -> Spec:
     """Parse and validate a model against data without fitting it."""
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
-    spec, frame, source = read_inputs(model, data)
+    if isinstance(data, (str, Path)) and Path(data).suffix.lower() == SUMMARY_SUFFIX:
+        spec = load_spec(model)
+        moments, _ = read_summary_file(data)
+        check_columns(spec, list(moments.names), moments.source)
+        check_counting_rule(spec, build_parameter_table(spec))
+        return spec
+    spec, frame, source = read_inputs(model, data, **read_options)
     groups, _ = moments_for(spec, frame, source, group)
     labels = tuple(label for label, _ in groups) if group is not None else None
     check_counting_rule(spec, build_parameter_table(spec, labels))

@@ -28,7 +28,9 @@ def build_parser() -> argparse.ArgumentParser:
 
     fit = sub.add_parser("fit", help="fit a model to data and report the result")
     fit.add_argument("model", metavar="MODEL", help="model file")
-    fit.add_argument("--data", required=True, metavar="FILE", help="data file (CSV, TSV or semicolon-separated)")
+    fit.add_argument("--data", required=True, metavar="FILE",
+                     help="data file: CSV/TSV, Excel .xlsx, SPSS .sav/.por, Stata .dta, or a .stats summary-statistics file")
+    _add_data_options(fit)
     _add_group_options(fit, required=False)
     _add_output_options(fit)
 
@@ -36,10 +38,12 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("model", metavar="MODEL", help="model file")
     check.add_argument("--data", required=True, metavar="FILE", help="data file")
     check.add_argument("--group", metavar="COLUMN", help="column that defines groups")
+    _add_data_options(check)
 
     compare = sub.add_parser("compare", help="fit rival models to the same rows and test nested pairs")
     compare.add_argument("models", metavar="MODEL", nargs="+", help="two or more model files")
     compare.add_argument("--data", required=True, metavar="FILE", help="data file")
+    _add_data_options(compare)
     _add_group_options(compare, required=False)
     _add_test_option(compare)
     _add_json_option(compare)
@@ -47,6 +51,7 @@ def build_parser() -> argparse.ArgumentParser:
     inv = sub.add_parser("invariance", help="test configural, metric, scalar and strict invariance across groups")
     inv.add_argument("model", metavar="MODEL", help="model file")
     inv.add_argument("--data", required=True, metavar="FILE", help="data file")
+    _add_data_options(inv)
     _add_group_options(inv, required=True)
     inv.add_argument("--partial", choices=("none", "auto"), default="none",
                      help="'auto': when a step fails, free the constraint with the largest score test until it holds")
@@ -64,6 +69,21 @@ def build_parser() -> argparse.ArgumentParser:
     demo = sub.add_parser("demo", help="fit the bundled rider-experience demo and print the report")
     _add_output_options(demo)
     return parser
+
+
+def _add_data_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--sheet", metavar="NAME", help="sheet of an Excel workbook (default: the first)")
+    p.add_argument("--missing-codes", metavar="LIST", type=_codes, default=(),
+                   help="comma-separated values that mean 'no answer', e.g. -99,999")
+    p.add_argument("--keep", metavar="FILTER", action="append", default=[],
+                   help="keep only rows that meet COLUMN OPERATOR VALUE, e.g. 'district = north' (repeatable)")
+
+
+def _codes(text: str) -> tuple[float, ...]:
+    try:
+        return tuple(float(t) for t in text.split(",") if t.strip())
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"missing codes must be numbers separated by commas, not '{text}'") from None
 
 
 def _add_group_options(p: argparse.ArgumentParser, required: bool) -> None:
@@ -136,13 +156,14 @@ def _run(args: argparse.Namespace) -> int:
     if args.command == "check":
         from cfa_tool.api import check
 
-        spec = check(args.model, args.data, group=args.group)
+        spec = check(args.model, args.data, group=args.group, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep)
         print(f"{args.model}: model is valid: {len(spec.factors)} factors, {len(spec.observed_names)} indicators, all found in {args.data}")
         return 0
     if args.command == "demo":
         from cfa_tool.resources import resource_dir
 
-        args.group = args.reference_group = None
+        args.group = args.reference_group = args.sheet = None
+        args.missing_codes, args.keep = (), []
         model = resource_dir("models") / "rider_three_factors.cfa"
         data = resource_dir("demo") / "rider_survey.csv"
         return _fit_and_report(args, str(model), str(data))
@@ -151,7 +172,8 @@ def _run(args: argparse.Namespace) -> int:
         from cfa_tool.workflows.compare import compare
 
         _check_output(args, args.models + [args.data])
-        result = compare(args.models, args.data, group=args.group, reference_group=args.reference_group, test=args.test)
+        result = compare(args.models, args.data, group=args.group, reference_group=args.reference_group, test=args.test,
+                         sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep)
         return _emit(args, result, render_comparison)
     if args.command == "invariance":
         from cfa_tool.reporting.workflow_text import render_invariance
@@ -159,7 +181,8 @@ def _run(args: argparse.Namespace) -> int:
 
         _check_output(args, [args.model, args.data])
         result = invariance(args.model, args.data, args.group, reference_group=args.reference_group,
-                            partial=args.partial, alpha=args.alpha)
+                            partial=args.partial, alpha=args.alpha, sheet=args.sheet, missing_codes=args.missing_codes,
+                            keep=args.keep)
         return _emit(args, result, render_invariance)
     if args.command == "replicate":
         return _replicate(args)
@@ -219,7 +242,8 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
     from cfa_tool.reporting.terminal import render
 
     _check_output(args, [model, data])
-    result = fit(model, data, group=args.group, reference_group=args.reference_group, information=args.information,
+    result = fit(model, data, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
+                 missing_codes=args.missing_codes, keep=args.keep, information=args.information,
                  mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=args.test,
                  missing=args.missing)
     if not result.converged:

@@ -137,6 +137,7 @@ class FitResult:
     mi_top: int | None = None
     theta: np.ndarray | None = field(repr=False, default=None)
     missing_data: dict | None = None  # coverage per item and missing-data patterns
+    labels: dict | None = None  # variable and value labels from SPSS/Stata files
 
     # -- single-group conveniences (the first group when there are several)
     @property
@@ -208,6 +209,9 @@ class FitResult:
             normality = self.groups[0].normality
             out["normality"] = clean(normality.to_dict()) if normality is not None else None
         out["missing_data"] = clean(self.missing_data) if self.missing_data is not None else None
+        if self.labels is not None:
+            out["labels"] = {"variables": self.labels["variables"],
+                             "values": {k: {str(code): text for code, text in v.items()} for k, v in self.labels["values"].items()}}
         out["modification_indices"] = [clean(m.to_dict()) for m in self.reported_modification_indices()]
         out["warnings"] = list(self.warnings)
         return out

@@ -8,6 +8,7 @@ from pathlib import Path
 import pandas as pd
 
 from cfa_tool.api import load_frame, load_spec, make_options, moments_for
+from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.matching import check_columns
 from cfa_tool.errors import OptionError
 from cfa_tool.fitting import fit_moments
@@ -51,14 +52,17 @@ class Comparison:
 
 
 def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, group: str | None = None,
-            reference_group: str | None = None, **options) -> Comparison:
+            reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
+            keep: tuple[str, ...] | list[str] = (), **options) -> Comparison:
     """Fit every model to the same rows (complete on all their variables) and test each nested pair."""
     if len(models) < 2:
         raise OptionError("comparing needs at least two models")
     fit_options = replace(make_options(options), normality=False)
     specs = [load_spec(m) for m in models]
-    frame, source = load_frame(data)
+    frame, source = load_frame(data, sheet, missing_codes)
     frame = frame.set_axis([str(c) for c in frame.columns], axis=1)
+    if keep:
+        frame, _ = apply_filters(frame, [parse_filter(k) for k in keep], source)
     for spec in specs:
         check_columns(spec, list(frame.columns), source)
     used = sorted({x for spec in specs for x in spec.observed_names})

@@ -100,6 +100,7 @@ class InvarianceResult:
 
 def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
                reference_group: str | None = None, partial: str = "none", alpha: float = 0.05,
+               sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
                **options) -> InvarianceResult:
     """Fit the invariance ladder; with ``partial='auto'`` free the likeliest culprits until each step holds."""
     if partial not in PARTIAL_CHOICES:
@@ -107,7 +108,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     if not 0 < alpha < 1:
         raise OptionError("alpha must be between 0 and 1")
     fit_options = replace(make_options(options), normality=False)
-    spec, frame, source = read_inputs(model, data)
+    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     if spec.invariant:
         raise OptionError("the invariance ladder sets 'invariant' itself; remove 'invariant' statements from the model file")
     groups, notes = moments_for(spec, frame, source, group, reference_group)

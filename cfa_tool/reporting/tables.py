@@ -1,0 +1,192 @@
+"""The report's tables as plain data (title, columns, rows of text), shared by
+every reporter: terminal, HTML, Markdown, LaTeX and CSV format the same tables."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from cfa_tool.reporting.numbers import missing, num, p_value, unit
+
+GUIDE_NOTE = (
+    "Guide values are common practice (Hu & Bentler 1999), not laws: they were derived for particular models and "
+    "conditions, and meeting them does not prove the model right."
+)
+HIGH_STAKES_NOTE = (
+    "If this scale is used for decisions about people (screening, hiring, diagnosis), such use needs evidence of "
+    "validity for that purpose and the judgement of a licensed professional under local rules."
+)
+MAX_RESIDUAL_MATRIX = 20
+
+KIND_TITLES = {
+    "loading": "Loadings",
+    "factor_variance": "Factor variances",
+    "factor_covariance": "Factor covariances (standardized: correlations)",
+    "residual_variance": "Residual (error) variances",
+    "residual_covariance": "Residual covariances (standardized: residual correlations)",
+    "intercept": "Intercepts",
+    "mean": "Factor means",
+}
+
+
+@dataclass(frozen=True)
+class ReportTable:
+    key: str
+    title: str
+    columns: tuple[str, ...]
+    align: tuple[str, ...]  # "l" or "r" per column
+    rows: tuple[tuple[str, ...], ...]
+    note: str | None = None
+
+
+def _table(key: str, title: str, columns: list[tuple[str, str]], rows: list[list[str]], note: str | None = None) -> ReportTable:
+    return ReportTable(key, title, tuple(c for c, _ in columns), tuple(a for _, a in columns),
+                       tuple(tuple(r) for r in rows), note)
+
+
+def p_phrase(p) -> str:
+    text = p_value(p)
+    return text if text.startswith("<") else f"= {text}"
+
+
+def fit_table(result) -> ReportTable:
+    f = result.fit
+    low, high = f.rmsea_ci90
+    rows = [
+        ["Chi-square test", f"{f.chi_square:.3f} on {f.df} df, p {p_phrase(f.p_value)}", "p > .05 (very sensitive to N)"],
+        ["CFI", unit(f.cfi), ">= .95"],
+        ["TLI", unit(f.tli), ">= .95"],
+        ["RMSEA [90% interval]", f"{unit(f.rmsea)} [{unit(low)}, {unit(high)}]", "<= .06"],
+        ["  test of close fit (RMSEA <= .05)", f"p {p_phrase(f.rmsea_p_close)}", ""],
+        ["SRMR", unit(f.srmr), "<= .08"],
+    ]
+    r = result.robust
+    if r is not None:
+        rlow, rhigh = r.rmsea_robust_ci90
+        rows += [
+            [f"Scaled chi-square ({r.method})", f"{r.chi_square_scaled:.3f} on {r.df} df, p {p_phrase(r.p_value_scaled)}",
+             "use this test with non-normal data"],
+            ["  scaling factor", num(r.scaling_factor), "1 under normality"],
+            ["Robust CFI / TLI", f"{unit(r.cfi_robust)} / {unit(r.tli_robust)}", ">= .95"],
+            ["Robust RMSEA [90% interval]", f"{unit(r.rmsea_robust)} [{unit(rlow)}, {unit(rhigh)}]", "<= .06"],
+        ]
+    rows += [
+        ["Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", ""],
+        ["Log-likelihood", num(f.log_likelihood), ""],
+        ["AIC / BIC / adjusted BIC", f"{num(f.aic)} / {num(f.bic)} / {num(f.sabic)}", "lower is better"],
+        ["Free parameters", str(f.n_free_parameters), ""],
+    ]
+    return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")], rows, GUIDE_NOTE)
+
+
+def estimate_tables(result, group: int = 0) -> list[ReportTable]:
+    tables = []
+    label = result.groups[group].label
+    r_squared = result.groups[group].r_squared
+    suffix = "" if label is None else f"_{group}"
+    for kind, title in KIND_TITLES.items():
+        rows = [r for r in result.estimates if r.kind == kind and r.group == label]
+        if not rows:
+            continue
+        first = "Factor" if kind == "loading" else "Variable"
+        cols = [(first, "l")]
+        if kind in ("loading", "factor_covariance", "residual_covariance"):
+            cols.append(("Indicator" if kind == "loading" else "With", "l"))
+        cols += [("Estimate", "r"), ("SE", "r"), ("z", "r"), ("p", "r"), ("95% CI", "r"), ("Standardized", "r")]
+        if kind == "loading":
+            cols.append(("R²", "r"))
+        body = []
+        previous = None
+        for r in rows:
+            names = list(r.variables)
+            if kind == "loading":
+                shown = names[0] if names[0] != previous else ""
+                previous = names[0]
+                names[0] = shown
+            ci = "" if missing(r.ci95[0]) else f"[{num(r.ci95[0])}, {num(r.ci95[1])}]"
+            cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", num(r.z, 2), p_value(r.p_value), ci,
+                             num(r.standardized)]
+            if kind == "loading":
+                r2 = r_squared.get(r.variables[1])
+                cells.append(num(r2) if r2 is not None else "")
+            body.append(cells)
+        tables.append(_table(kind + suffix, title, cols, body))
+    return tables
+
+
+def residual_table(result, group: int = 0) -> ReportTable | None:
+    """Lower triangle of the residual correlations (sample minus model)."""
+    names = result.observed
+    if len(names) > MAX_RESIDUAL_MATRIX or len(names) < 2 or not result.converged:
+        return None
+    r = result.groups[group].residual_correlations
+    rows = [[f"{i + 1} {name}"] + [unit(r[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
+            for i, name in enumerate(names) if i > 0]
+    return _table(f"residuals_{group}", "Residual correlations (sample minus model)",
+                  [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows)
+
+
+def group_table(result) -> ReportTable:
+    rows = [[str(g.label), str(g.data.n_obs), num(g.chi_square), unit(g.srmr)] for g in result.groups]
+    return _table("groups", f"Groups ({result.group_column})",
+                  [("Group", "l"), ("N", "r"), ("Share of chi-square", "r"), ("SRMR", "r")], rows)
+
+
+def missing_table(result) -> ReportTable | None:
+    summary = result.missing_data
+    if not summary:
+        return None
+    rows = [[p["pattern"], str(p["rows"])] for p in summary["patterns"][:8]]
+    low = sorted(summary["coverage"].items(), key=lambda kv: kv[1])[:5]
+    note = f"{summary['n_patterns']} patterns. Lowest coverage: " + ", ".join(f"{name} {100 * share:.1f}%" for name, share in low)
+    return _table("missing", "Missing answers",
+                  [("Pattern of answers (x) and gaps (.), items in model order", "l"), ("Rows", "r")], rows, note)
+
+
+def modification_table(result, limit: int = 10) -> ReportTable | None:
+    rows = result.reported_modification_indices()
+    if not rows:
+        return None
+    shown = rows[:limit] if result.mi_top is None else rows
+    title = f"Largest modification indices (at least {result.mi_threshold:g}; {len(shown)} of {len(rows)} shown)"
+    body = []
+    for m in shown:
+        where = f" in {m.group}" if m.group is not None else ""
+        body.append([f"{m.kind.replace('_', ' ')} {', '.join(m.variables)}{where}", num(m.index, 2), num(m.expected_change),
+                     num(m.standardized_expected_change)])
+    return _table("modification", title, [("Parameter that could be freed", "l"), ("Index", "r"), ("Expected change", "r"),
+                                          ("Standardized", "r")], body)
+
+
+def item_table(result) -> ReportTable:
+    d = result.data
+    return _table("items", "Items (analysed rows)", [("Item", "l"), ("Mean", "r"), ("SD", "r")],
+                  [[name, num(m, 2), num(s, 2)] for name, m, s in zip(d.variables, d.means, d.sds)])
+
+
+def normality_lines(result) -> list[str]:
+    lines = []
+    for g in result.groups:
+        n = g.normality
+        if n is None:
+            continue
+        where = f" in group {g.label}" if g.label is not None else ""
+        line = (f"Multivariate normality{where} (Mardia 1970): skewness {n.skewness:.3f}, chi-square {n.skewness_chi_square:.2f} "
+                f"on {n.skewness_df} df, p {p_phrase(n.skewness_p_value)}; kurtosis {n.kurtosis:.3f} "
+                f"(normal: {n.kurtosis_expected:g}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}.")
+        if (n.skewness_p_value < 0.05 or n.kurtosis_p_value < 0.05) and result.robust is None:
+            line += " The data depart from normality: consider the scaled test (--test satorra-bentler)."
+        lines.append(line)
+    return lines
+
+
+def local_fit_line(result) -> str | None:
+    local = result.largest_residual_correlation()
+    if not local:
+        return None
+    a, b, r = local
+    return f"Local fit: the largest residual correlation is between {a} and {b}: {unit(r, 2)}."
+
+
+def status_line(result) -> str:
+    status = f"converged in {result.iterations} iterations" if result.converged else f"DID NOT CONVERGE ({result.message})"
+    return f"Estimation: {result.estimator}, {status}"
