@@ -104,6 +104,10 @@ def _add_json_option(p: argparse.ArgumentParser) -> None:
 
 def _add_output_options(p: argparse.ArgumentParser) -> None:
     _add_json_option(p)
+    p.add_argument("--html", metavar="PATH", help="write a self-contained HTML report (tables, path diagram, methods paragraph)")
+    p.add_argument("--markdown", metavar="PATH", help="write the report as Markdown")
+    p.add_argument("--diagram", metavar="PATH", help="write the path diagram as SVG (or PNG when PATH ends in .png and a converter is installed)")
+    p.add_argument("--tables", metavar="FOLDER", help="write every table as CSV and as LaTeX (booktabs) into FOLDER")
     p.add_argument("--information", choices=("expected", "observed"), default="expected",
                    help="information matrix for standard errors (default: expected)")
     p.add_argument("--mi-threshold", type=float, default=3.84, metavar="X",
@@ -211,9 +215,72 @@ def _replicate(args: argparse.Namespace) -> int:
     return _emit(args, _Pair(), lambda _, console: render_replication(pair, console))
 
 
+REPORT_OPTIONS = ("json", "html", "markdown", "diagram")
+
+
 def _check_output(args: argparse.Namespace, inputs: list[str]) -> None:
-    if args.json and args.json != "-":
-        _refuse_overwriting_input(Path(args.json), [Path(i) for i in inputs])
+    targets = [getattr(args, name, None) for name in REPORT_OPTIONS]
+    for target in targets:
+        if target and target != "-":
+            _refuse_overwriting_input(Path(target), [Path(i) for i in inputs])
+    folder = getattr(args, "tables", None)
+    if folder and Path(folder).exists() and not Path(folder).is_dir():
+        raise OptionError(f"--tables needs a folder, and '{folder}' is a file")
+    named = [t for t in targets if t and t != "-"]
+    if len(set(named)) != len(named):
+        raise OptionError("two outputs are given the same file name")
+
+
+def _write_reports(args: argparse.Namespace, result) -> None:
+    """The report files asked for, each written atomically."""
+    if getattr(args, "html", None):
+        from cfa_tool.reporting.html_report import html_report
+
+        write_atomically(Path(args.html), html_report(result))
+        print(f"HTML report written to {args.html}")
+    if getattr(args, "markdown", None):
+        from cfa_tool.reporting.text_formats import markdown_report
+
+        write_atomically(Path(args.markdown), markdown_report(result))
+        print(f"Markdown report written to {args.markdown}")
+    if getattr(args, "diagram", None):
+        from cfa_tool.reporting.diagram import path_diagram
+
+        target = Path(args.diagram)
+        svg = path_diagram(result)
+        if target.suffix.lower() == ".png":
+            _write_png(svg, target)
+        else:
+            write_atomically(target, svg)
+        print(f"Path diagram written to {args.diagram}")
+    if getattr(args, "tables", None):
+        from cfa_tool.reporting.text_formats import all_tables, csv_table, latex_table
+
+        folder = Path(args.tables)
+        folder.mkdir(parents=True, exist_ok=True)
+        for table in all_tables(result):
+            write_atomically(folder / f"{table.key}.csv", csv_table(table))
+            write_atomically(folder / f"{table.key}.tex", latex_table(table))
+        print(f"Tables written to {folder}/ as CSV and LaTeX")
+
+
+def _write_png(svg: str, target: Path) -> None:
+    import shutil
+    import subprocess
+    import tempfile
+
+    converter = shutil.which("rsvg-convert")
+    if converter is None:
+        raise OptionError("writing PNG needs the rsvg-convert program (Debian package librsvg2-bin); write .svg instead")
+    directory = target.parent if str(target.parent) else Path(".")
+    with tempfile.TemporaryDirectory(dir=directory) as tmp:
+        source = Path(tmp) / "diagram.svg"
+        source.write_text(svg, encoding="utf-8")
+        out = Path(tmp) / "diagram.png"
+        done = subprocess.run([converter, "-o", str(out), str(source)], capture_output=True, text=True)
+        if done.returncode != 0 or not out.exists():
+            raise OptionError(f"the SVG-to-PNG converter failed: {done.stderr.strip()[:200]}")
+        os.replace(out, target)
 
 
 def _emit(args: argparse.Namespace, result, render) -> int:
@@ -226,6 +293,7 @@ def _emit(args: argparse.Namespace, result, render) -> int:
     if args.json:
         write_atomically(Path(args.json), to_json(result))
         print(f"JSON result written to {args.json}")
+    _write_reports(args, result)
     return 0
 
 

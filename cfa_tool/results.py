@@ -221,5 +221,10 @@ class FitResult:
 
         return render_text(self)
 
+    def _repr_html_(self) -> str:  # notebooks show the report's tables
+        from cfa_tool.reporting.html_report import result_tables_html
+
+        return result_tables_html(self)
+
     def __str__(self) -> str:
         return self.summary()

@@ -1,0 +1,134 @@
+"""One self-contained HTML file (inline CSS and SVG, no scripts, no external
+assets) with everything a researcher needs for a paper."""
+
+from __future__ import annotations
+
+from cfa_tool import __version__
+from cfa_tool.reporting import tables as T
+from cfa_tool.reporting.diagram import path_diagram
+from cfa_tool.reporting.escape import html_text as esc
+from cfa_tool.reporting.paragraph import methods_paragraph
+from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
+
+CSS = """
+body{font-family:Georgia,'Times New Roman',serif;max-width:1100px;margin:2em auto;padding:0 1em;color:#1a1a1a;line-height:1.45}
+h1{font-size:1.6em;margin-bottom:.2em} h2{font-size:1.2em;border-bottom:1px solid #999;margin-top:1.8em}
+table{border-collapse:collapse;margin:.6em 0 1.2em;font-size:.92em}
+caption{text-align:left;font-weight:bold;padding:.3em 0}
+th{border-top:2px solid #333;border-bottom:1px solid #333;padding:.25em .7em;font-weight:normal;font-style:italic}
+td{padding:.2em .7em} tbody tr:last-child td{border-bottom:2px solid #333}
+td.r,th.r{text-align:right;font-variant-numeric:tabular-nums} td.l,th.l{text-align:left}
+.note{font-size:.88em;color:#444;max-width:60em} .caution{background:#fff7e6;border-left:4px solid #e0a030;padding:.6em 1em}
+.summary{background:#f4f7fb;border-left:4px solid #1f3b73;padding:.8em 1em} pre{background:#f6f6f6;padding:.8em;overflow-x:auto}
+.diagram{overflow-x:auto;border:1px solid #ddd;padding:.5em} td.heat{text-align:right;min-width:3em}
+ul.warnings li{margin:.3em 0}
+"""
+
+
+def table_html(table: ReportTable) -> str:
+    head = "".join(f'<th class="{a}">{esc(c)}</th>' for c, a in zip(table.columns, table.align))
+    body = "".join("<tr>" + "".join(f'<td class="{a}">{esc(v)}</td>' for v, a in zip(row, table.align)) + "</tr>"
+                   for row in table.rows)
+    note = f'<p class="note">{esc(table.note)}</p>' if table.note else ""
+    return (f'<table id="{esc(table.key)}"><caption>{esc(table.title)}</caption><thead><tr>{head}</tr></thead>'
+            f"<tbody>{body}</tbody></table>{note}")
+
+
+def heat_map(result, group: int = 0) -> str:
+    """Residual correlations as a lower-triangle table whose cells are shaded by size and sign."""
+    names = result.observed
+    r = result.groups[group].residual_correlations
+    head = "".join(f'<th class="r">{k + 1}</th>' for k in range(len(names)))
+    rows = []
+    for i, name in enumerate(names):
+        cells = []
+        for j in range(len(names)):
+            if j >= i:
+                cells.append("<td></td>")
+                continue
+            v = float(r[i, j])
+            strength = min(abs(v) / 0.15, 1.0)
+            colour = f"rgba(200,40,40,{strength:.2f})" if v > 0 else f"rgba(40,80,200,{strength:.2f})"
+            cells.append(f'<td class="heat" style="background:{colour}">{esc(f"{v:.2f}".replace("0.", ".", 1))}</td>')
+        rows.append(f'<tr><td class="l">{i + 1} {esc(name)}</td>{"".join(cells)}</tr>')
+    return (f'<table id="residual-heat-map"><caption>Residual correlations (sample minus model); red: the model '
+            f'underestimates, blue: it overestimates; full colour at |r| &gt;= .15</caption>'
+            f'<thead><tr><th></th>{head}</tr></thead><tbody>{"".join(rows)}</tbody></table>')
+
+
+def result_tables_html(result) -> str:
+    """The tables of a fit, as an HTML fragment (also what notebooks show)."""
+    parts = []
+    if result.fit is not None and result.converged:
+        parts.append(table_html(T.fit_table(result)))
+    for g, group in enumerate(result.groups):
+        if result.multigroup:
+            parts.append(f"<h3>Group {esc(group.label)} (N = {group.data.n_obs})</h3>")
+        parts.extend(table_html(t) for t in T.estimate_tables(result, g))
+    mi = T.modification_table(result)
+    if mi is not None:
+        parts.append(table_html(mi))
+    return "\n".join(parts)
+
+
+def html_report(result) -> str:
+    d = result.data
+    sections = [
+        f"<h1>{esc(result.model_name)}</h1>",
+        f'<p class="note">Model file {esc(result.model_source)}; data {esc(d.source)}; {d.n_obs} rows analysed of {d.rows_read} read'
+        f"{'' if not d.rows_dropped else f', {d.rows_dropped} left out'}. {esc(T.status_line(result))}.</p>",
+    ]
+    if not result.converged:
+        sections.append('<p class="caution">The estimation did not converge. Nothing below is a result.</p>')
+    sections += [
+        "<h2>Summary for a paper</h2>",
+        f'<p class="summary" id="methods-paragraph">{esc(methods_paragraph(result))}</p>',
+        "<h2>Path diagram</h2>",
+        f'<div class="diagram">{path_diagram(result)}</div>',
+        '<p class="note">Standardized values. Ellipses: factors; rectangles: observed items; circles: residual terms '
+        "(share of variance not explained); dashed arrows: loadings fixed to set a factor's scale.</p>",
+    ]
+    if result.fit is not None and result.converged:
+        sections += ["<h2>Fit</h2>", table_html(T.fit_table(result))]
+        sections += [f'<p class="note">{esc(line)}</p>' for line in T.normality_lines(result)]
+        local = T.local_fit_line(result)
+        if local:
+            sections.append(f"<p>{esc(local)}</p>")
+        if result.multigroup:
+            sections.append(table_html(T.group_table(result)))
+    sections.append("<h2>Estimates</h2>")
+    for g, group in enumerate(result.groups):
+        if result.multigroup:
+            sections.append(f"<h3>Group {esc(group.label)} (N = {group.data.n_obs})</h3>")
+        sections.extend(table_html(t) for t in T.estimate_tables(result, g))
+    if result.converged and len(result.observed) > 1:
+        sections.append("<h2>Local fit</h2>")
+        sections.append(heat_map(result))
+    mi = T.modification_table(result)
+    if mi is not None:
+        sections.append(table_html(mi))
+        sections.append('<p class="note">Freeing parameters because of large modification indices capitalises on chance; '
+                        "a model changed that way needs confirmation in new data.</p>")
+    sections.append("<h2>Data</h2>")
+    sections.append(table_html(T.item_table(result)))
+    missing = T.missing_table(result)
+    if missing is not None:
+        sections.append(table_html(missing))
+    if result.labels:
+        items = "".join(f"<li>{esc(k)}: {esc(v)}</li>" for k, v in result.labels.get("variables", {}).items())
+        scales = "".join(
+            f"<li>{esc(k)}: " + "; ".join(f"{esc(f'{code:g}')} = {esc(text)}" for code, text in v.items()) + "</li>"
+            for k, v in result.labels.get("values", {}).items())
+        sections.append(f"<h3>Labels from the data file</h3><ul>{items}{scales}</ul>")
+    sections.append("<h2>Model</h2>")
+    sections.append(f"<pre>{esc(result.model_text)}</pre>")
+    if result.warnings:
+        sections.append("<h2>Notes and warnings</h2>")
+        sections.append('<ul class="warnings">' + "".join(f"<li>{esc(w)}</li>" for w in result.warnings) + "</ul>")
+    sections.append("<h2>Cautions</h2>")
+    sections.append(f'<p class="caution">{esc(GUIDE_NOTE)}</p><p class="caution">{esc(HIGH_STAKES_NOTE)}</p>')
+    sections.append(f'<p class="note">Made by cfa-tool {esc(__version__)}.</p>')
+    body = "\n".join(sections)
+    return (f'<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">'
+            f'<meta name="viewport" content="width=device-width, initial-scale=1">'
+            f"<title>{esc(result.model_name)}</title><style>{CSS}</style></head>\n<body>\n{body}\n</body></html>\n")

@@ -1,0 +1,84 @@
+"""Markdown report, and tables as CSV and LaTeX (booktabs) for journals."""
+
+from __future__ import annotations
+
+import csv
+import io
+
+from cfa_tool.reporting import tables as T
+from cfa_tool.reporting.escape import latex_text, markdown_text
+from cfa_tool.reporting.paragraph import methods_paragraph
+from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
+
+
+def all_tables(result) -> list[ReportTable]:
+    out = []
+    if result.fit is not None and result.converged:
+        out.append(T.fit_table(result))
+        if result.multigroup:
+            out.append(T.group_table(result))
+    for g in range(len(result.groups)):
+        out.extend(T.estimate_tables(result, g))
+        residuals = T.residual_table(result, g)
+        if residuals is not None:
+            out.append(residuals)
+    for extra in (T.modification_table(result), T.item_table(result), T.missing_table(result)):
+        if extra is not None:
+            out.append(extra)
+    return out
+
+
+def markdown_table(table: ReportTable) -> str:
+    def cell(text: str) -> str:
+        return markdown_text(text) if text else ""
+
+    lines = [f"**{markdown_text(table.title)}**", "",
+             "| " + " | ".join(cell(c) or " " for c in table.columns) + " |",
+             "| " + " | ".join("---:" if a == "r" else "---" for a in table.align) + " |"]
+    lines += ["| " + " | ".join(cell(v) for v in row) + " |" for row in table.rows]
+    if table.note:
+        lines += ["", f"*{markdown_text(table.note)}*"]
+    return "\n".join(lines) + "\n"
+
+
+def markdown_report(result) -> str:
+    parts = [f"# {markdown_text(result.model_name)}", "",
+             markdown_text(f"Data: {result.data.source}; {result.data.n_obs} rows analysed of {result.data.rows_read} read. "
+                           f"{T.status_line(result)}."), "",
+             "## Summary for a paper", "", markdown_text(methods_paragraph(result)), ""]
+    for line in T.normality_lines(result):
+        parts += [markdown_text(line), ""]
+    for table in all_tables(result):
+        parts.append(markdown_table(table))
+    if result.warnings:
+        parts += ["## Notes and warnings", ""] + [f"- {markdown_text(w)}" for w in result.warnings] + [""]
+    parts += ["## Cautions", "", markdown_text(GUIDE_NOTE), "", markdown_text(HIGH_STAKES_NOTE), ""]
+    return "\n".join(parts)
+
+
+def csv_table(table: ReportTable) -> str:
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow(table.columns)
+    writer.writerows(table.rows)
+    return buffer.getvalue()
+
+
+def latex_table(table: ReportTable) -> str:
+    spec = "".join("r" if a == "r" else "l" for a in table.align)
+    lines = [
+        "\\begin{table}[ht]", "\\centering", f"\\caption{{{latex_text(table.title)}}}",
+        f"\\begin{{tabular}}{{{spec}}}", "\\toprule",
+        " & ".join(latex_text(c) for c in table.columns) + " \\\\", "\\midrule",
+    ]
+    lines += [" & ".join(latex_text(v) for v in row) + " \\\\" for row in table.rows]
+    lines += ["\\bottomrule", "\\end{tabular}"]
+    if table.note:
+        lines.append(f"\\par\\small {latex_text(table.note)}")
+    lines.append("\\end{table}")
+    return "\n".join(lines) + "\n"
+
+
+def latex_tables(result) -> str:
+    header = "% Tables written by cfa-tool; needs \\usepackage{booktabs}\n"
+    return header + "\n".join(latex_table(t) for t in all_tables(result))

@@ -1,0 +1,164 @@
+"""Reports: HTML (checked in a real headless browser when one is installed), the SVG
+path diagram, Markdown, CSV and LaTeX tables, notebook display, and escaping."""
+
+from __future__ import annotations
+
+import re
+import shutil
+import subprocess
+import tempfile
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.reporting.diagram import path_diagram
+from cfa_tool.reporting.escape import latex_text, markdown_text
+from cfa_tool.reporting.html_report import html_report
+from cfa_tool.reporting.paragraph import methods_paragraph
+from cfa_tool.reporting.text_formats import latex_tables, markdown_report
+from tests.conftest import simulate_cfa
+from tests.test_cli import DATA, MODEL, run
+
+HOSTILE = "<script>alert(1)</script>"
+HOSTILE_IMG = "<img src=x onerror=alert(1)>"
+
+
+@pytest.fixture(scope="module")
+def demo_result():
+    return cfa_tool.fit(MODEL, DATA)
+
+
+@pytest.fixture(scope="module")
+def hostile_result():
+    """A fit whose column names and title are markup."""
+    loadings = np.zeros((6, 2))
+    loadings[:3, 0] = [1.0, 0.8, 0.9]
+    loadings[3:, 1] = [1.0, 1.1, 0.7]
+    names = [HOSTILE, "b & c", "d", HOSTILE_IMG, "e_1", "f|g"]
+    data = simulate_cfa(loadings, np.array([[1.0, 0.4], [0.4, 0.8]]), np.diag([0.5] * 6), 300, 4, names)
+    model = f'name "{HOSTILE}"\nfactor "{HOSTILE_IMG} factor": "{HOSTILE}", "b & c", d\nfactor g: "{HOSTILE_IMG}", e_1, "f|g"\n'
+    return cfa_tool.fit(model, data)
+
+
+def _count(pattern: str, text: str) -> int:
+    return len(re.findall(pattern, text))
+
+
+def test_html_report_has_every_section_and_no_external_assets(demo_result):
+    page = html_report(demo_result)
+    for words in ("Summary for a paper", "Path diagram", "Model fit", "Loadings", "Factor covariances", "Residual correlations",
+                  "Largest modification indices", "Items (analysed rows)", "not laws", "licensed professional",
+                  "chi-square(51) = 52.57"):
+        assert words in page, words
+    assert "<script" not in page
+    assert not re.search(r'(src|href)\s*=\s*["\']?(https?:)?//', page)
+    assert "@import" not in page and "url(http" not in page
+
+
+def test_diagram_has_one_ellipse_per_factor_and_one_rectangle_per_indicator(demo_result):
+    svg = path_diagram(demo_result)
+    assert _count(r"<ellipse\b", svg) == len(demo_result.latent) == 3
+    assert _count(r"<rect\b", svg) == len(demo_result.observed) == 12
+    assert _count(r'class="loading"', svg) == 12
+    assert _count(r'class="covariance"', svg) == 3
+
+
+def test_diagram_of_a_large_higher_order_model_is_legible():
+    # 40 indicators, 8 factors, 2 higher-order factors: nothing may overlap
+    loadings = np.zeros((40, 8))
+    for i in range(40):
+        loadings[i, i // 5] = 0.7
+    data = simulate_cfa(loadings, 0.5 * np.eye(8) + 0.5, np.diag(np.full(40, 0.5)), 1500, 3,
+                        [f"questionnaire_item_{i:02d}" for i in range(40)])
+    lines = [f"factor trait{j}: " + ", ".join(f"questionnaire_item_{i:02d}" for i in range(5 * j, 5 * j + 5)) for j in range(8)]
+    lines += ["factor upper_a: trait0, trait1, trait2, trait3", "factor upper_b: trait4, trait5, trait6, trait7"]
+    result = cfa_tool.fit("\n".join(lines) + "\n", data)
+    svg = path_diagram(result)
+    assert _count(r"<ellipse\b", svg) == 10 and _count(r"<rect\b", svg) == 40
+    boxes = [(float(x), float(w)) for x, w in re.findall(r'<rect class="indicator" x="([\d.]+)" y="[\d.]+" width="([\d.]+)"', svg)]
+    boxes.sort()
+    assert all(a[0] + a[1] < b[0] for a, b in zip(boxes, boxes[1:]))
+    ellipses = [(float(cx), float(cy), float(rx)) for cx, cy, rx in
+                re.findall(r'<ellipse class="factor" cx="([\d.]+)" cy="([\d.]+)" rx="([\d.]+)"', svg)]
+    for (x1, y1, r1) in ellipses:
+        for (x2, y2, r2) in ellipses:
+            if (x1, y1) < (x2, y2) and y1 == y2:
+                assert abs(x2 - x1) >= r1 + r2
+    width = float(re.search(r'viewBox="0 0 ([\d.]+)', svg).group(1))
+    assert all(cx + rx <= width for cx, _, rx in ellipses)
+
+
+def test_user_strings_are_escaped_in_every_format(hostile_result):
+    page = html_report(hostile_result)
+    svg = path_diagram(hostile_result)
+    for text in (page, svg):
+        assert HOSTILE not in text and HOSTILE_IMG not in text
+        assert "&lt;script&gt;alert(1)&lt;/script&gt;" in text
+    md = markdown_report(hostile_result)
+    assert HOSTILE not in md and "<img" not in md
+    tex = latex_tables(hostile_result)
+    assert r"e\_1" in tex and r"b \& c" in tex
+    assert markdown_text("a|b*c") == r"a\|b\*c"
+    assert latex_text("50% of $x_1") == r"50\% of \$x\_1"
+
+
+def test_methods_paragraph_reports_the_numbers(demo_result):
+    text = methods_paragraph(demo_result)
+    f = demo_result.fit
+    assert f"chi-square({f.df}) = {f.chi_square:.2f}" in text
+    assert "N = 471" in text and "maximum likelihood" in text and "90% CI [" in text and "SRMR" in text
+
+
+def test_notebook_display(demo_result):
+    fragment = demo_result._repr_html_()
+    assert fragment.startswith("<table") and "Loadings" in fragment and "<html" not in fragment
+
+
+def test_cli_writes_every_report(tmp_path):
+    proc = run("fit", str(MODEL), "--data", str(DATA), "--html", str(tmp_path / "r.html"), "--markdown", str(tmp_path / "r.md"),
+               "--diagram", str(tmp_path / "d.svg"), "--tables", str(tmp_path / "tables"))
+    assert proc.returncode == 0, proc.stderr
+    assert (tmp_path / "r.html").read_text().startswith("<!DOCTYPE html>")
+    assert (tmp_path / "d.svg").read_text().startswith("<svg")
+    assert "Model fit" in (tmp_path / "r.md").read_text()
+    loadings = (tmp_path / "tables" / "loading.csv").read_text().splitlines()
+    assert loadings[0].startswith("Factor,Indicator,Estimate")
+    assert "\\toprule" in (tmp_path / "tables" / "loading.tex").read_text()
+    assert not list(tmp_path.glob(".*.tmp"))
+
+
+@pytest.mark.skipif(shutil.which("rsvg-convert") is None, reason="rsvg-convert (librsvg2-bin) is not installed")
+def test_cli_png_diagram(tmp_path):
+    proc = run("demo", "--diagram", str(tmp_path / "d.png"))
+    assert proc.returncode == 0, proc.stderr
+    assert (tmp_path / "d.png").read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
+CHROMIUM_FLAGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+                  "--disable-background-networking", "--disable-component-update", "--disable-sync"]
+
+
+def _chromium(*args: str) -> subprocess.CompletedProcess:
+    with tempfile.TemporaryDirectory() as profile:
+        return subprocess.run([CHROMIUM, *CHROMIUM_FLAGS, f"--user-data-dir={profile}", *args],
+                              capture_output=True, text=True, timeout=120)
+
+
+@pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed (.ci/run installs it)")
+def test_report_in_a_real_browser(tmp_path, hostile_result):
+    page = tmp_path / "report.html"
+    page.write_text(html_report(hostile_result), encoding="utf-8")
+    url = page.resolve().as_uri()
+    shot = tmp_path / "report.png"
+    done = _chromium("--window-size=1200,1600", f"--screenshot={shot}", "--enable-logging=stderr", "--v=0", url)
+    assert shot.exists() and shot.stat().st_size > 10_000, done.stderr[-2000:]
+    console = [line for line in done.stderr.splitlines() if "CONSOLE" in line]
+    assert not console, console
+    dom = _chromium("--dump-dom", url).stdout
+    assert "<script>alert(1)</script>" not in dom and "<img src=\"x\"" not in dom
+    assert "&lt;script&gt;alert(1)&lt;/script&gt;" in dom and "&lt;img src=x onerror=alert(1)&gt;" in dom
+    assert _count(r"<ellipse\b", dom) == 2 and _count(r"<rect\b", dom) == 6
