@@ -127,6 +127,11 @@ def _version() -> str:
 
 def main(argv: list[str] | None = None) -> int:
     parser = build_parser()
+    argv = list(sys.argv[1:] if argv is None else argv)
+    for k, arg in enumerate(argv[:-1]):  # '--missing-codes -99,999': a value that starts with '-'
+        if arg == "--missing-codes" and argv[k + 1].startswith("-"):
+            argv[k : k + 2] = [f"{arg}={argv[k + 1]}"]
+            break
     args = parser.parse_args(argv)
     if args.command is None:
         parser.print_help()

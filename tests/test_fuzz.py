@@ -1,0 +1,123 @@
+"""Property-based fuzzing: generated and mutated model texts, and random data, must only
+ever produce results or the tool's own errors, never another exception.
+
+CI runs a few thousand model texts; the long run in DEVELOPERS.md sets
+CFA_FUZZ_EXAMPLES=100000.
+"""
+
+from __future__ import annotations
+
+import os
+import string
+
+import numpy as np
+import pandas as pd
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+import cfa_tool
+from cfa_tool.errors import CfaError
+from cfa_tool.language import parse_model
+
+EXAMPLES = int(os.environ.get("CFA_FUZZ_EXAMPLES", "3000"))
+FIT_EXAMPLES = max(50, EXAMPLES // 20)
+SETTINGS = dict(deadline=None, derandomize=True, suppress_health_check=list(HealthCheck))
+
+NAMES = ["f", "g", "h", "q1", "q2", "q3", "q4", "q5", "q6", "x", "item1", "_a", "loading", "factor"]
+KINDS = ["loading", "variance", "covariance", "intercept", "mean", "threshold", "loadng"]
+names = st.sampled_from(NAMES) | st.text(alphabet=string.ascii_letters + string.digits + "_", min_size=1, max_size=6)
+quoted = st.text(alphabet=st.characters(blacklist_characters='"\n\r'), max_size=8).map(lambda s: f'"{s}"')
+name_item = names | quoted | st.tuples(names, st.integers(0, 12), st.integers(0, 12)).map(lambda t: f"{t[0]}{t[1]}..{t[0]}{t[2]}")
+name_list = st.lists(name_item, min_size=0, max_size=5).map(", ".join)
+number = st.one_of(st.integers(-5, 5).map(str), st.floats(allow_nan=False, allow_infinity=False, width=32).map(repr),
+                   st.sampled_from(["1e308", "-0", "1e-320", "nan", ".5"]))
+ref = st.tuples(st.sampled_from(KINDS), st.lists(names, min_size=0, max_size=3)).map(lambda t: f"{t[0]}({', '.join(t[1])})")
+refs = st.lists(ref, min_size=1, max_size=3).map(", ".join)
+statement = st.one_of(
+    st.tuples(names, name_list).map(lambda t: f"factor {t[0]}: {t[1]}"),
+    name_list.map(lambda s: f"covary {s}"),
+    name_list.map(lambda s: f"uncorrelated {s}"),
+    st.tuples(refs, number).map(lambda t: f"fix {t[0]} = {t[1]}"),
+    refs.map(lambda s: f"free {s}"),
+    refs.map(lambda s: f"equal {s}"),
+    st.tuples(refs, number).map(lambda t: f"start {t[0]} = {t[1]}"),
+    st.tuples(refs, st.sampled_from([">=", "<=", "=>", "<"]), number).map(lambda t: f"bound {t[0]} {t[1]} {t[2]}"),
+    st.tuples(st.sampled_from(["latent", "f", "f, g"]), st.sampled_from(["marker", "variance", "effects", "magic"])).map(
+        lambda t: f"scale {t[0]} by {t[1]}"),
+    st.tuples(names, refs, number).map(lambda t: f"in group {t[0]}: fix {t[1]} = {t[2]}"),
+    name_list.map(lambda s: f"invariant {s}"),
+    refs.map(lambda s: f"noninvariant {s}"),
+    quoted.map(lambda s: f"name {s}"),
+    st.text(max_size=20),
+)
+model_text = st.lists(statement, min_size=0, max_size=8).map("\n".join)
+
+
+@st.composite
+def mutated(draw):
+    text = draw(model_text)
+    for _ in range(draw(st.integers(0, 3))):
+        if not text:
+            break
+        position = draw(st.integers(0, len(text)))
+        action = draw(st.sampled_from(["insert", "delete", "duplicate"]))
+        if action == "insert":
+            text = text[:position] + draw(st.text(max_size=4)) + text[position:]
+        elif action == "delete":
+            text = text[:position] + text[position + draw(st.integers(1, 5)):]
+        else:
+            text = text[:position] + text[position:] + text[position:]
+    return text
+
+
+def _parse(text: str) -> None:
+    try:
+        parse_model(text, "fuzz.cfa")
+    except CfaError:
+        pass
+
+
+@settings(max_examples=EXAMPLES, **SETTINGS)
+@given(model_text)
+def test_generated_model_texts(text):
+    _parse(text)
+
+
+@settings(max_examples=EXAMPLES, **SETTINGS)
+@given(mutated())
+def test_mutated_model_texts(text):
+    _parse(text)
+
+
+cells = st.one_of(st.floats(allow_nan=True, allow_infinity=True, width=32), st.integers(-3, 3), st.sampled_from(["", "x", "1,5"]))
+
+
+@st.composite
+def data_frames(draw):
+    n = draw(st.integers(0, 40))
+    columns = draw(st.lists(st.sampled_from(["q1", "q2", "q3", "q4", "q5", "q6", "site"]), min_size=1, max_size=7, unique=True))
+    rng = np.random.default_rng(draw(st.integers(0, 2**16)))
+    frame = pd.DataFrame(rng.normal(size=(n, len(columns))) + rng.normal(size=(n, 1)), columns=columns).astype(object)
+    for _ in range(draw(st.integers(0, 4))):
+        if n:
+            frame.iat[draw(st.integers(0, n - 1)), draw(st.integers(0, len(columns) - 1))] = draw(cells)
+    return frame
+
+
+valid_models = st.sampled_from([
+    "factor f: q1, q2, q3\n",
+    "factor f: q1, q2, q3\nfactor g: q4, q5, q6\n",
+    "factor f: q1..q6\nscale latent by variance\n",
+    "factor f: q1, q2, q3\nfactor g: q4, q5, q6\nfactor h: f, g\nequal loading(h, f), loading(h, g)\n",
+    "factor f: q1, q2, q3\nfactor g: q3, q4, q5, q6\ncovary q1, q2\nbound variance(q1) >= 0\n",
+])
+
+
+@settings(max_examples=FIT_EXAMPLES, **SETTINGS)
+@given(valid_models, data_frames(), st.sampled_from([{}, {"missing": "full-information"}, {"test": "satorra-bentler"},
+                                                     {"group": "site"}, {"information": "observed"}]))
+def test_fits_of_random_data(model, frame, options):
+    try:
+        cfa_tool.fit(model, frame, **options)
+    except CfaError:
+        pass
