@@ -11,10 +11,12 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.assessment.admissibility import admissibility_warnings
+from cfa_tool.assessment.diagnostics import case_diagnostics, normalized_residuals
 from cfa_tool.assessment.fit_indices import fit_indices, srmr_value
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
 from cfa_tool.assessment.modification import modification_indices
 from cfa_tool.assessment.normality import mardia
+from cfa_tool.assessment.reliability import reliability
 from cfa_tool.assessment.residuals import correlation_residuals
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.data.groups import pooled
@@ -221,6 +223,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 sample_mean=gm.mean,
                 implied_mean=mats[g].implied_mean() if means else None,
                 normality=mardia(gm.rows) if options.normality and gm.rows is not None else None,
+                **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.normality),
             )
         )
     first = groups[0][1]
@@ -257,6 +260,19 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         mi_top=options.mi_top,
         theta=theta,
     )
+
+
+def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool) -> dict:
+    """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often)."""
+    if not wanted:
+        return {}
+    factors, htmt = reliability(mats, table.observed, table.latent, gm.covariance)
+    out = {"reliability": tuple(factors), "htmt": tuple(htmt),
+           "normalized_residuals": normalized_residuals(gm.covariance, sigma, gm.n_obs)}
+    if gm.rows is not None and not np.isnan(gm.rows).any():
+        unusual, influential = case_diagnostics(gm.rows, sigma, m.row_numbers)
+        out.update(unusual_cases=tuple(unusual), influential_cases=tuple(influential))
+    return out
 
 
 def _summary(m: SampleMoments, observed: tuple[str, ...], gm: GroupMoments) -> DataSummary:

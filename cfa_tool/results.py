@@ -101,6 +101,21 @@ class GroupResult:
     sample_mean: np.ndarray = field(repr=False)
     implied_mean: np.ndarray | None = field(repr=False, default=None)
     normality: Normality | None = None
+    reliability: tuple = ()  # FactorReliability per factor
+    htmt: tuple = ()  # Htmt per pair of first-order factors
+    normalized_residuals: np.ndarray | None = field(repr=False, default=None)
+    unusual_cases: tuple = ()  # CaseDiagnostic, largest Mahalanobis distances
+    influential_cases: tuple = ()  # CaseDiagnostic, largest shares of the chi-square
+
+    def reliability_dict(self) -> dict:
+        return {"factors": [clean(r.to_dict()) for r in self.reliability], "htmt": [clean(h.to_dict()) for h in self.htmt]}
+
+    def diagnostics_dict(self) -> dict:
+        return {
+            "normalized_residuals": clean(self.normalized_residuals.tolist()) if self.normalized_residuals is not None else None,
+            "unusual_cases": [clean(c.to_dict()) for c in self.unusual_cases],
+            "influential_cases": [clean(c.to_dict()) for c in self.influential_cases],
+        }
 
     def residuals_dict(self, observed: tuple[str, ...]) -> dict:
         out = {
@@ -200,6 +215,8 @@ class FitResult:
                     "r_squared": clean(dict(g.r_squared)),
                     "residuals": g.residuals_dict(self.observed),
                     "normality": clean(g.normality.to_dict()) if g.normality is not None else None,
+                    "reliability": g.reliability_dict(),
+                    "diagnostics": g.diagnostics_dict(),
                 }
                 for g in self.groups
             ]
@@ -208,6 +225,8 @@ class FitResult:
             out["residuals"] = self.groups[0].residuals_dict(self.observed)
             normality = self.groups[0].normality
             out["normality"] = clean(normality.to_dict()) if normality is not None else None
+            out["reliability"] = self.groups[0].reliability_dict()
+            out["diagnostics"] = self.groups[0].diagnostics_dict()
         out["missing_data"] = clean(self.missing_data) if self.missing_data is not None else None
         if self.labels is not None:
             out["labels"] = {"variables": self.labels["variables"],

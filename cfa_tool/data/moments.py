@@ -25,6 +25,7 @@ class SampleMoments:
     source: str
     group: str | None = None  # 'label of column' for one group of a multi-group data set
     rows: np.ndarray | None = field(default=None, repr=False, compare=False)  # the complete rows analysed
+    row_numbers: np.ndarray | None = field(default=None, repr=False, compare=False)  # their data-row numbers (1-based)
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
@@ -73,6 +74,14 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
         )
 
 
+def _row_numbers(frame: pd.DataFrame) -> np.ndarray:
+    """1-based data-row numbers: from the index when it counts rows (files, filtered files), else positions."""
+    index = frame.index
+    if pd.api.types.is_integer_dtype(index) and index.is_unique and len(index) and index.min() >= 0:
+        return np.asarray(index, dtype=int) + 1
+    return np.arange(1, len(frame) + 1)
+
+
 def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, group: str | None = None,
                    missing: str = "listwise") -> SampleMoments:
     """Moments of the model variables: of the complete rows (listwise deletion), or, with
@@ -99,7 +108,8 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     centred = data - means
     cov = centred.T @ centred / n
     _check_moments(cov, means, names, source)
-    return SampleMoments(tuple(names), cov, means, n, len(frame), int((~complete).sum()), file_source, group, data)
+    numbers = _row_numbers(frame)[complete]
+    return SampleMoments(tuple(names), cov, means, n, len(frame), int((~complete).sum()), file_source, group, data, numbers)
 
 
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int) -> SampleMoments:

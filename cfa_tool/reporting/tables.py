@@ -157,6 +157,42 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
                                           ("Standardized", "r")], body)
 
 
+def reliability_table(result, group: int = 0) -> ReportTable | None:
+    rows = result.groups[group].reliability
+    if not rows:
+        return None
+    body = []
+    for r in rows:
+        fl = "" if r.fornell_larcker_holds is None else ("yes" if r.fornell_larcker_holds else "no")
+        body.append([r.factor, str(len(r.items)), unit(r.omega), unit(r.omega_total), unit(r.composite_reliability),
+                     unit(r.average_variance_extracted), fl, unit(r.alpha)])
+    note = ("Omega: share of the item sum's variance due to the factor (for a higher-order factor: omega hierarchical); "
+            "omega total: due to all factors; CR: composite reliability; AVE: average variance extracted; "
+            "'sqrt(AVE) > r': the Fornell-Larcker comparison with every other factor; alpha from the sample covariances.")
+    return _table(f"reliability_{group}", "Reliability and validity",
+                  [("Factor", "l"), ("Items", "r"), ("Omega", "r"), ("Omega total", "r"), ("CR", "r"), ("AVE", "r"),
+                   ("sqrt(AVE) > r", "l"), ("Alpha", "r")], body, note)
+
+
+def htmt_table(result, group: int = 0) -> ReportTable | None:
+    pairs = result.groups[group].htmt
+    if not pairs:
+        return None
+    return _table(f"htmt_{group}", "Heterotrait-monotrait ratios",
+                  [("Factor", "l"), ("Factor", "l"), ("HTMT", "r")], [[h.first, h.second, unit(h.ratio, 2)] for h in pairs],
+                  "Henseler, Ringle & Sarstedt (2015). Common practice reads values above .85 (or .90) as a sign that two factors are not distinct.")
+
+
+def case_table(result, group: int = 0) -> ReportTable | None:
+    cases = result.groups[group].influential_cases
+    if not cases:
+        return None
+    return _table(f"cases_{group}", "Rows that contribute most to the chi-square",
+                  [("Data row", "r"), ("Share of chi-square", "r"), ("Mahalanobis distance", "r"), ("p", "r")],
+                  [[str(c.row), num(c.chi_square_share, 2), num(c.mahalanobis, 2), p_value(c.p_value)] for c in cases[:5]],
+                  "Each row's share sums over all rows to the chi-square; large shares and distances point at rows worth checking.")
+
+
 def item_table(result) -> ReportTable:
     d = result.data
     return _table("items", "Items (analysed rows)", [("Item", "l"), ("Mean", "r"), ("SD", "r")],

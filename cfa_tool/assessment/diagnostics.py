@@ -1,0 +1,53 @@
+"""Local and case diagnostics.
+
+* normalized residuals (s_ij - sigma_ij) / sqrt((sigma_ii sigma_jj + sigma_ij^2) / N),
+  approximately standard normal under the model (Bollen 1989, p. 258);
+* Mahalanobis distance of each row from the centroid, d^2 = (x - m)' S^-1 (x - m)
+  (Mahalanobis 1936), chi-square on p df for normal data;
+* each row's share of the chi-square: with means saturated,
+  2 (l_i(saturated) - l_i(model)) = log|Sigma| - log|S| + d_i' Sigma^-1 d_i - d_i' S^-1 d_i,
+  which sums over rows to the chi-square statistic exactly.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import stats
+
+
+@dataclass(frozen=True)
+class CaseDiagnostic:
+    row: int  # data row number in the file (1 = first row after the header)
+    mahalanobis: float
+    p_value: float
+    chi_square_share: float
+
+    def to_dict(self) -> dict:
+        return {"row": self.row, "mahalanobis": self.mahalanobis, "p_value": self.p_value,
+                "chi_square_share": self.chi_square_share}
+
+
+def normalized_residuals(S: np.ndarray, sigma: np.ndarray, n_obs: int) -> np.ndarray:
+    d = np.diag(sigma)
+    scale = np.sqrt((np.outer(d, d) + sigma**2) / n_obs)
+    return (S - sigma) / scale
+
+
+def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarray | None, top: int = 10
+                     ) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
+    """(rows with the largest Mahalanobis distances, rows with the largest shares of chi-square)."""
+    n, p = rows.shape
+    dev = rows - rows.mean(axis=0)
+    S = dev.T @ dev / n
+    d_sample = np.einsum("ij,ij->i", dev @ np.linalg.inv(S), dev)
+    d_model = np.einsum("ij,ij->i", dev @ np.linalg.inv(sigma), dev)
+    share = np.linalg.slogdet(sigma)[1] - np.linalg.slogdet(S)[1] + d_model - d_sample
+    numbers = np.arange(1, n + 1) if row_numbers is None else row_numbers
+    p_values = stats.chi2.sf(d_sample, p)
+
+    def pick(order) -> list[CaseDiagnostic]:
+        return [CaseDiagnostic(int(numbers[i]), float(d_sample[i]), float(p_values[i]), float(share[i])) for i in order[:top]]
+
+    return pick(np.argsort(-d_sample, kind="stable")), pick(np.argsort(-share, kind="stable"))
