@@ -193,3 +193,18 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     labels = tuple(label for label, _ in groups) if group is not None else None
     check_counting_rule(spec, build_parameter_table(spec, labels))
     return spec
+
+
+def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 1000, seed: int = 1,
+              bollen_stine: bool = True, bca: bool = True, workers: int | None = None, cluster: str | None = None,
+              progress=None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
+              keep: tuple[str, ...] | list[str] = ()):
+    """Fit the model, then bootstrap it: returns (FitResult, BootstrapResult)."""
+    from cfa_tool.workflows.bootstrap import bootstrap_fit
+
+    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
+    moments = sample_moments(frame, spec.observed_names, source)
+    result = fit_moments(spec, moments, FitOptions())
+    order = [moments.names.index(n) for n in result.observed]
+    boot = bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, cluster, progress)
+    return result, boot

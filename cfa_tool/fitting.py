@@ -105,7 +105,8 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
         cov, mean = pooled([m for _, m in groups])
         order = [groups[0][1].names.index(n) for n in table.observed]
         start = starting_values(table, cov[np.ix_(order, order)], mean[order])
-    opt = minimise(likelihood.evaluate, likelihood.value, start, table.lower, table.upper, options.max_iterations)
+    opt = minimise(likelihood.evaluate, likelihood.value, start, table.lower, table.upper, options.max_iterations,
+                   gradient=likelihood.gradient)
     return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, opt.message)
 
 
@@ -278,3 +279,53 @@ def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: n
 def _summary(m: SampleMoments, observed: tuple[str, ...], gm: GroupMoments) -> DataSummary:
     return DataSummary(m.source, m.rows_read, m.rows_dropped, m.n_obs, observed,
                        tuple(float(v) for v in gm.mean), tuple(float(v) for v in np.sqrt(np.diag(gm.covariance))))
+
+
+@dataclass(frozen=True)
+class ReplicateFit:
+    """What a replication (bootstrap, Monte Carlo) keeps of one fit."""
+
+    converged: bool
+    theta: np.ndarray
+    values: np.ndarray  # every table entry
+    standardized: np.ndarray  # every table entry, fully standardized
+    se: np.ndarray | None
+    chi_square: float
+    cfi: float
+    rmsea: float
+    srmr: float
+
+
+def replicate_fit(spec: Spec, moments: SampleMoments, start: np.ndarray | None = None, standard_errors: bool = False,
+                  fit_indices_wanted: bool = True, max_iterations: int = 200) -> ReplicateFit:
+    """A light fit for replications: estimates, standardized values, optionally SEs and the main indices."""
+    options = FitOptions(max_iterations=max_iterations, normality=False)
+    est = estimate(spec, [(None, moments)], options, start=start)
+    table, model = est.table, est.model
+    values = model.entry_values(est.theta)
+    nan = float("nan")
+    if not est.converged:
+        return ReplicateFit(False, est.theta, values, np.full_like(values, np.nan), None, nan, nan, nan, nan)
+    mats = model.matrices(est.theta)
+    codes, rows, cols = table.entry_arrays()
+    std, _ = standardize_entries(mats, codes, rows, cols, values)
+    se = None
+    if standard_errors:
+        evaluation = est.likelihood.evaluate(est.theta)
+        try:
+            cov = parameter_covariance(evaluation.information, moments.n_obs)
+            se = wald_inference(values, model.J, cov).se
+        except np.linalg.LinAlgError:
+            se = np.full_like(values, np.nan)
+    chi = cfi = rmsea = srmr = nan
+    if fit_indices_wanted:
+        gm = est.likelihood.groups[0]
+        f = fit_indices([(gm.covariance, mats.implied_covariance(), gm.n_obs, None)], est.value, table.n_free)
+        chi, cfi, rmsea, srmr = f.chi_square, f.cfi, f.rmsea, f.srmr
+    return ReplicateFit(True, est.theta, values, std, se, chi, cfi, rmsea, srmr)
+
+
+def moments_from_rows(rows: np.ndarray, names: tuple[str, ...], source: str = "<replication>") -> SampleMoments:
+    mean = rows.mean(axis=0)
+    dev = rows - mean
+    return SampleMoments(tuple(names), dev.T @ dev / len(rows), mean, len(rows), len(rows), 0, source, None, rows)

@@ -142,19 +142,24 @@ class NormalLikelihood:
         """Value, gradient and expected information at theta (None if some Sigma is not positive definite)."""
         return evaluate_groups(self, theta)
 
+    def gradient(self, theta: np.ndarray) -> np.ndarray:
+        ev = evaluate_groups(self, theta, with_information=False)
+        return np.full(len(theta), np.nan) if ev is None else ev.gradient
 
-def evaluate_groups(likelihood, theta: np.ndarray) -> Evaluation | None:
-    """Sum value, gradient and information over groups from each group's parts."""
+
+def evaluate_groups(likelihood, theta: np.ndarray, with_information: bool = True) -> Evaluation | None:
+    """Sum value, gradient and (unless not wanted) information over groups from each group's parts."""
     q = len(theta)
     gradient = np.zeros(q)
-    information = np.zeros((q, q))
+    information = np.zeros((q, q)) if with_information else None
     for g, w in enumerate(likelihood.weights):
         parts = likelihood.group_parts(theta, g)
         if parts is None:
             return None
         d_sigma, d_mu = likelihood.model.jacobian(theta, g)
         gradient += w * parts.gradient(d_sigma, d_mu)
-        information += w * parts.information(d_sigma, d_mu)
+        if with_information:
+            information += w * parts.information(d_sigma, d_mu)
     value = likelihood.value(theta)
     if not np.isfinite(value):
         return None
@@ -169,10 +174,8 @@ def whiten(chol_lower: np.ndarray, delta: np.ndarray) -> np.ndarray:
     q, p, _ = delta.shape
     if q == 0:
         return np.zeros((0, p * p))
-    Y = solve_triangular(chol_lower, delta.transpose(1, 0, 2).reshape(p, q * p), lower=True, check_finite=False)
-    Y = Y.reshape(p, q, p).transpose(1, 2, 0)  # (q, p, p): (C^-1 D_k)' = D_k C^-T
-    X = solve_triangular(chol_lower, Y.transpose(1, 0, 2).reshape(p, q * p), lower=True, check_finite=False)
-    return X.reshape(p, q, p).transpose(1, 0, 2).reshape(q, p * p)
+    c_inv = solve_triangular(chol_lower, np.eye(p), lower=True, check_finite=False)
+    return (c_inv @ delta @ c_inv.T).reshape(q, p * p)
 
 
 def expected_information(chol_lower: np.ndarray, delta: np.ndarray) -> np.ndarray:

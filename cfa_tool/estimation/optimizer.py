@@ -1,9 +1,12 @@
 """Fisher scoring with a backtracking line search and simple bounds.
 
 Scoring uses the expected information as the Hessian (Lee & Jennrich 1979);
-parameters at a bound with the gradient pointing outwards are held there
-(a projected Newton step, Bertsekas 1982).  If scoring stalls, a quasi-Newton
-method (L-BFGS-B) with the analytic gradient continues from the best point.
+it converges only linearly when the model does not fit, so near the minimum
+the steps switch to Newton's method with the observed Hessian (differences
+of the analytic gradient), which converges quadratically.  Parameters at a
+bound with the gradient pointing outwards are held there (a projected Newton
+step, Bertsekas 1982).  If this stalls, a quasi-Newton method (L-BFGS-B) with
+the analytic gradient continues from the best point.
 """
 
 from __future__ import annotations
@@ -36,6 +39,8 @@ def minimise(
     upper: np.ndarray,
     max_iterations: int = 500,
     tolerance: float = 1e-14,
+    gradient: Callable[[np.ndarray], np.ndarray] | None = None,
+    newton_below: float = 1e-4,
 ) -> OptimizerResult:
     theta = np.clip(np.asarray(start, dtype=float), lower, upper)
     current = evaluate(theta)
@@ -58,6 +63,10 @@ def minimise(
         decrement = float(-g[inactive] @ step[inactive])
         if decrement < tolerance:
             return OptimizerResult(theta, current.value, g, iterations - 1, True, "converged")
+        if gradient is not None and decrement < newton_below:
+            newton = _newton_step(gradient, theta, g, inactive)
+            if newton is not None:
+                step = newton
         slope = float(g @ step)
         if slope >= 0:  # not a descent direction: fall back to steepest descent
             step = -np.where(active, 0.0, g)
@@ -78,6 +87,26 @@ def minimise(
             break
         theta, current = trial, new
     return _quasi_newton(evaluate, value, theta, current, lower, upper, iterations, max_iterations)
+
+
+def _newton_step(gradient, theta: np.ndarray, g: np.ndarray, inactive: np.ndarray) -> np.ndarray | None:
+    """Newton step with the observed Hessian from forward differences of the analytic gradient;
+    None when that Hessian is not positive definite (then scoring continues)."""
+    idx = np.flatnonzero(inactive)
+    H = np.empty((len(idx), len(idx)))
+    for col, k in enumerate(idx):
+        h = 1e-6 * max(1.0, abs(theta[k]))
+        shifted = theta.copy()
+        shifted[k] += h
+        H[:, col] = (gradient(shifted)[idx] - g[idx]) / h
+    H = 0.5 * (H + H.T)
+    try:
+        np.linalg.cholesky(H)
+    except np.linalg.LinAlgError:
+        return None
+    step = np.zeros_like(theta)
+    step[idx] = -scaled_solve(H, g[idx])
+    return step if np.all(np.isfinite(step)) else None
 
 
 def newton_decrement(ev: Evaluation, theta: np.ndarray, lower: np.ndarray, upper: np.ndarray) -> float:

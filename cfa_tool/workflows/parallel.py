@@ -1,0 +1,61 @@
+"""Run many independent replications: in local processes by default, or on a Dask
+cluster when a scheduler address is given.  Each task carries its own seed, so
+results do not depend on where or in which order tasks run."""
+
+from __future__ import annotations
+
+import os
+from concurrent.futures import ProcessPoolExecutor
+from typing import Callable, Sequence
+
+from cfa_tool.errors import OptionError
+
+
+def default_workers() -> int:
+    return max(1, len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else (os.cpu_count() or 1))
+
+
+def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, cluster: str | None = None,
+              progress: Callable[[int], None] | None = None, chunk: int = 25) -> list:
+    """fn(task) for every task, results in task order.  ``progress(k)`` is called as tasks finish."""
+    if cluster:
+        return _run_on_cluster(fn, tasks, cluster, progress)
+    workers = default_workers() if workers is None else workers
+    if workers <= 1 or len(tasks) <= chunk:
+        out = []
+        for task in tasks:
+            out.append(fn(task))
+            if progress:
+                progress(1)
+        return out
+    batches = [list(tasks[i : i + chunk]) for i in range(0, len(tasks), chunk)]
+    out = []
+    with ProcessPoolExecutor(max_workers=workers) as pool:
+        for results in pool.map(_run_batch, [fn] * len(batches), batches):
+            out.extend(results)
+            if progress:
+                progress(len(results))
+    return out
+
+
+def _run_batch(fn: Callable, batch: list) -> list:
+    return [fn(task) for task in batch]
+
+
+def _run_on_cluster(fn: Callable, tasks: Sequence, address: str, progress) -> list:
+    try:
+        from dask.distributed import Client, as_completed
+    except ImportError:
+        raise OptionError("running on a cluster needs the dask.distributed package (pip install 'cfa-tool[cluster]')") from None
+    try:
+        client = Client(address, timeout=10)
+    except Exception as exc:  # connection errors come in many types
+        raise OptionError(f"cannot reach the cluster scheduler at {address} ({type(exc).__name__})") from None
+    try:
+        futures = client.map(fn, list(tasks), pure=False)
+        if progress:
+            for _ in as_completed(futures):
+                progress(1)
+        return client.gather(futures)
+    finally:
+        client.close()

@@ -1,0 +1,88 @@
+"""Power and sample size for RMSEA-based tests (MacCallum, Browne & Sugawara 1996).
+
+With n = N - 1 and noncentrality lambda = n df eps^2, the test of H0: eps = eps0
+against eps = eps_a uses the noncentral chi-square:
+
+* eps_a > eps0 (tests of close fit, eps0 = .05 vs .08, and of exact fit, 0 vs .05):
+  reject when T > c, c the 1 - alpha quantile under eps0; power = P(T > c | eps_a);
+* eps_a < eps0 (test of not-close fit, .05 vs .01): reject when T < c, c the alpha
+  quantile under eps0; power = P(T < c | eps_a).
+"""
+
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass
+
+from scipy import stats
+
+from cfa_tool.errors import OptionError
+
+TESTS = {  # name: (eps0, eps_a), the conventions of MacCallum, Browne & Sugawara (1996)
+    "close": (0.05, 0.08),
+    "not-close": (0.05, 0.01),
+    "exact": (0.0, 0.05),
+}
+
+
+@dataclass(frozen=True)
+class PowerResult:
+    test: str
+    df: int
+    rmsea_null: float
+    rmsea_alternative: float
+    alpha: float
+    n_obs: int | None
+    power: float | None
+    required_n: int | None
+    target_power: float
+
+    def to_dict(self) -> dict:
+        return asdict(self)
+
+
+def _chi(df: int, lam: float):
+    return stats.chi2(df) if lam == 0 else stats.ncx2(df, lam)
+
+
+def rmsea_power(df: int, n_obs: int, rmsea_null: float, rmsea_alt: float, alpha: float = 0.05) -> float:
+    if df < 1 or n_obs < 2:
+        raise OptionError("power needs at least 1 degree of freedom and 2 observations")
+    n = n_obs - 1
+    null = _chi(df, n * df * rmsea_null**2)
+    alt = _chi(df, n * df * rmsea_alt**2)
+    if rmsea_alt > rmsea_null:
+        return float(alt.sf(null.ppf(1 - alpha)))
+    if rmsea_alt < rmsea_null:
+        return float(alt.cdf(null.ppf(alpha)))
+    raise OptionError("the null and alternative RMSEA must differ")
+
+
+def required_sample_size(df: int, rmsea_null: float, rmsea_alt: float, power: float = 0.80, alpha: float = 0.05,
+                         largest: int = 10_000_000) -> int:
+    """Smallest N whose power reaches ``power`` (power rises with N)."""
+    if not 0 < power < 1:
+        raise OptionError("the target power must be between 0 and 1")
+    lo, hi = 2, 4
+    while rmsea_power(df, hi, rmsea_null, rmsea_alt, alpha) < power:
+        lo, hi = hi, hi * 2
+        if hi > largest:
+            raise OptionError(f"more than {largest:,} observations would be needed")
+    while hi - lo > 1:
+        mid = (lo + hi) // 2
+        if rmsea_power(df, mid, rmsea_null, rmsea_alt, alpha) >= power:
+            hi = mid
+        else:
+            lo = mid
+    return hi
+
+
+def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 0.05, target_power: float = 0.80,
+         rmsea_null: float | None = None, rmsea_alt: float | None = None) -> PowerResult:
+    if test not in TESTS:
+        raise OptionError(f"test must be one of {', '.join(TESTS)}, not '{test}'")
+    eps0, epsa = TESTS[test]
+    eps0 = eps0 if rmsea_null is None else rmsea_null
+    epsa = epsa if rmsea_alt is None else rmsea_alt
+    power = rmsea_power(df, n_obs, eps0, epsa, alpha) if n_obs is not None else None
+    return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required_sample_size(df, eps0, epsa, target_power, alpha),
+                       target_power)
