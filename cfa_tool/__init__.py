@@ -7,11 +7,11 @@ model against data without fitting).  Heavy modules load on first use.
 from __future__ import annotations
 
 __version__ = "0.1.0"
-__all__ = ["fit", "check", "parse_model", "__version__"]
+__all__ = ["fit", "check", "bootstrap", "cutoffs", "parse_model", "__version__"]
 
 
 def __getattr__(name: str):
-    if name in ("fit", "check"):
+    if name in ("fit", "check", "bootstrap", "cutoffs"):
         from cfa_tool import api
 
         return getattr(api, name)

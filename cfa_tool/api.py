@@ -208,3 +208,14 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     order = [moments.names.index(n) for n in result.observed]
     boot = bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, cluster, progress)
     return result, boot
+
+
+def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 200, seed: int = 1,
+            workers: int | None = None, cluster: str | None = None, progress=None, sheet: str | None = None,
+            missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = ()):
+    """Fit the model, then simulate model-specific fit-index cutoffs: returns (FitResult, CutoffResult)."""
+    from cfa_tool.workflows.cutoffs import fit_cutoffs
+
+    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
+    result = fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions())
+    return result, fit_cutoffs(spec, result, replications, seed, workers, cluster, progress)

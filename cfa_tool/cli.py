@@ -66,6 +66,44 @@ def build_parser() -> argparse.ArgumentParser:
     rep.add_argument("--seed", type=int, default=1, help="seed of the random split (default 1)")
     _add_json_option(rep)
 
+    boot = sub.add_parser("bootstrap", help="bootstrap intervals and the Bollen-Stine p-value of a fit")
+    boot.add_argument("model", metavar="MODEL", help="model file")
+    boot.add_argument("--data", required=True, metavar="FILE", help="data file")
+    _add_data_options(boot)
+    boot.add_argument("--replications", type=int, default=1000, help="number of resamples (default 1000)")
+    _add_run_options(boot)
+
+    power = sub.add_parser("power", help="power and sample size of RMSEA tests of fit")
+    power.add_argument("model", metavar="MODEL", nargs="?", help="model file (gives the degrees of freedom)")
+    power.add_argument("--df", type=int, help="degrees of freedom (instead of a model file)")
+    power.add_argument("--n", type=int, help="sample size whose power to report")
+    power.add_argument("--test", choices=("close", "not-close", "exact"), default="close", help="which test (default close)")
+    power.add_argument("--alpha", type=float, default=0.05, help="significance level (default .05)")
+    power.add_argument("--target", type=float, default=0.80, help="power the sample size should reach (default .80)")
+    _add_json_option(power)
+
+    mc = sub.add_parser("power-simulation", help="Monte Carlo power, bias and coverage for a model with population values")
+    mc.add_argument("model", metavar="MODEL", help="model file; 'start' and 'fix' statements give population values")
+    mc.add_argument("--n", type=int, required=True, help="sample size of each simulated data set")
+    mc.add_argument("--replications", type=int, default=500, help="number of data sets (default 500)")
+    mc.add_argument("--alpha", type=float, default=0.05, help="significance level (default .05)")
+    _add_run_options(mc)
+
+    sim = sub.add_parser("simulate", help="write data simulated from a model with population values")
+    sim.add_argument("model", metavar="MODEL", help="model file; 'start' and 'fix' statements give population values")
+    sim.add_argument("--n", type=int, required=True, help="number of rows")
+    sim.add_argument("--output", required=True, metavar="PATH", help="CSV file to write")
+    sim.add_argument("--seed", type=int, default=1, help="random seed (default 1)")
+    sim.add_argument("--categories", type=int, help="make ordinal items with this many categories")
+    sim.add_argument("--missing", type=float, default=0.0, help="share of answers removed completely at random")
+
+    cut = sub.add_parser("cutoffs", help="fit-index cutoffs simulated for this model and sample size")
+    cut.add_argument("model", metavar="MODEL", help="model file")
+    cut.add_argument("--data", required=True, metavar="FILE", help="data file")
+    _add_data_options(cut)
+    cut.add_argument("--replications", type=int, default=200, help="samples per population (default 200)")
+    _add_run_options(cut)
+
     demo = sub.add_parser("demo", help="fit the bundled rider-experience demo and print the report")
     _add_output_options(demo)
     return parser
@@ -96,6 +134,13 @@ def _add_group_options(p: argparse.ArgumentParser, required: bool) -> None:
 def _add_test_option(p: argparse.ArgumentParser) -> None:
     p.add_argument("--test", choices=("normal", "satorra-bentler"), default="normal",
                    help="'satorra-bentler': scaled chi-square, robust standard errors and robust fit indices for non-normal data")
+
+
+def _add_run_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--seed", type=int, default=1, help="random seed (default 1); the same seed gives the same result")
+    p.add_argument("--workers", type=int, help="local processes (default: one per core)")
+    p.add_argument("--cluster", metavar="ADDRESS", help="Dask scheduler to run on, e.g. tcp://host:8786")
+    _add_json_option(p)
 
 
 def _add_json_option(p: argparse.ArgumentParser) -> None:
@@ -195,6 +240,8 @@ def _run(args: argparse.Namespace) -> int:
         return _emit(args, result, render_invariance)
     if args.command == "replicate":
         return _replicate(args)
+    if args.command in ("bootstrap", "power", "power-simulation", "simulate", "cutoffs"):
+        return _simulation_command(args)
     return _fit_and_report(args, args.model, args.data)
 
 
@@ -213,14 +260,94 @@ def _replicate(args: argparse.Namespace) -> int:
     else:
         raise OptionError("give --calibration and --validation files, or --data FILE to split one data set in two halves")
 
-    class _Pair:
-        def to_dict(self) -> dict:
-            return {"replications": [r.to_dict() for r in pair]}
+    return _emit(args, _Replications(pair), lambda _, console: render_replication(pair, console))
 
-    return _emit(args, _Pair(), lambda _, console: render_replication(pair, console))
+
+class _Replications(tuple):
+    def to_dict(self) -> dict:
+        return {"replications": [r.to_dict() for r in self]}
 
 
 REPORT_OPTIONS = ("json", "html", "markdown", "diagram")
+
+
+def _simulation_command(args: argparse.Namespace) -> int:
+    from cfa_tool.reporting import workflow_text as W
+
+    if args.command == "power":
+        from cfa_tool.workflows.power import plan
+
+        df = args.df
+        if args.model:
+            from cfa_tool.language.parser import read_model_file
+            from cfa_tool.model.parameters import build_parameter_table
+
+            table = build_parameter_table(read_model_file(args.model))
+            df = table.p * (table.p + 1) // 2 - table.n_free
+        if df is None:
+            raise OptionError("give a model file or --df")
+        return _emit(args, plan(df, args.test, args.n, args.alpha, args.target), W.render_power)
+    from cfa_tool.language.parser import read_model_file
+
+    if args.command == "simulate":
+        from cfa_tool.workflows.simulation import simulate
+
+        _refuse_overwriting_input(Path(args.output), [Path(args.model)])
+        frame = simulate(read_model_file(args.model), args.n, args.seed, args.categories, args.missing)
+        write_atomically(Path(args.output), frame.to_csv(index=False, na_rep=""))
+        print(f"{len(frame)} rows of {frame.shape[1]} variables written to {args.output} (seed {args.seed})")
+        return 0
+    inputs = [args.model] + ([args.data] if getattr(args, "data", None) else [])
+    _check_output(args, inputs)
+    with _progress(args.command) as advance:
+        if args.command == "power-simulation":
+            from cfa_tool.workflows.montecarlo import monte_carlo_power
+
+            result = monte_carlo_power(read_model_file(args.model), args.n, args.replications, args.seed, args.alpha,
+                                       args.workers, args.cluster, advance)
+            render = W.render_montecarlo
+        elif args.command == "bootstrap":
+            from cfa_tool.api import bootstrap
+
+            result = _Pair(bootstrap(args.model, args.data, args.replications, args.seed, workers=args.workers,
+                                     cluster=args.cluster, progress=advance, sheet=args.sheet,
+                                     missing_codes=args.missing_codes, keep=args.keep))
+            render = W.render_bootstrap
+        else:
+            from cfa_tool.api import cutoffs
+
+            result = _Pair(cutoffs(args.model, args.data, args.replications, args.seed, args.workers, args.cluster,
+                                   advance, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep))
+            render = W.render_cutoffs
+    return _emit(args, result, render)
+
+
+class _Pair(tuple):
+    """(fit, workflow result) pairs: JSON holds the workflow result beside the fit."""
+
+    def __new__(cls, pair):
+        return super().__new__(cls, pair)
+
+    def to_dict(self) -> dict:
+        fit, other = self
+        return {"fit": fit.to_dict(), "result": other.to_dict()}
+
+
+def _progress(label: str):
+    """A progress bar on standard error when it is a terminal; otherwise silence."""
+    import contextlib
+
+    if not sys.stderr.isatty():
+        return contextlib.nullcontext(None)
+    from rich.progress import Progress
+
+    @contextlib.contextmanager
+    def bar():
+        with Progress(transient=True) as progress:
+            task = progress.add_task(label, total=None)
+            yield lambda k: progress.advance(task, k)
+
+    return bar()
 
 
 def _check_output(args: argparse.Namespace, inputs: list[str]) -> None:

@@ -143,11 +143,11 @@ class NormalLikelihood:
         return evaluate_groups(self, theta)
 
     def gradient(self, theta: np.ndarray) -> np.ndarray:
-        ev = evaluate_groups(self, theta, with_information=False)
+        ev = evaluate_groups(self, theta, with_information=False, with_value=False)
         return np.full(len(theta), np.nan) if ev is None else ev.gradient
 
 
-def evaluate_groups(likelihood, theta: np.ndarray, with_information: bool = True) -> Evaluation | None:
+def evaluate_groups(likelihood, theta: np.ndarray, with_information: bool = True, with_value: bool = True) -> Evaluation | None:
     """Sum value, gradient and (unless not wanted) information over groups from each group's parts."""
     q = len(theta)
     gradient = np.zeros(q)
@@ -160,8 +160,8 @@ def evaluate_groups(likelihood, theta: np.ndarray, with_information: bool = True
         gradient += w * parts.gradient(d_sigma, d_mu)
         if with_information:
             information += w * parts.information(d_sigma, d_mu)
-    value = likelihood.value(theta)
-    if not np.isfinite(value):
+    value = likelihood.value(theta) if with_value else float("nan")
+    if with_value and not np.isfinite(value):
         return None
     return Evaluation(value, gradient, information)
 

@@ -48,6 +48,7 @@ def minimise(
         return OptimizerResult(theta, np.inf, np.full_like(theta, np.nan), 0, False,
                                "the starting values imply a covariance matrix that is not positive definite")
     iterations = 0
+    previous_decrement = np.inf
     for iterations in range(1, max_iterations + 1):
         g = current.gradient
         active = ((theta <= lower) & (g > 0)) | ((theta >= upper) & (g < 0))
@@ -63,7 +64,10 @@ def minimise(
         decrement = float(-g[inactive] @ step[inactive])
         if decrement < tolerance:
             return OptimizerResult(theta, current.value, g, iterations - 1, True, "converged")
-        if gradient is not None and decrement < newton_below:
+        # scoring converges linearly when the model misfits: then switch to Newton near the minimum
+        slow = decrement > 0.05 * previous_decrement
+        previous_decrement = decrement
+        if gradient is not None and decrement < newton_below and slow:
             newton = _newton_step(gradient, theta, g, inactive)
             if newton is not None:
                 step = newton

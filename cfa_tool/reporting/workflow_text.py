@@ -98,3 +98,62 @@ def render_replication(replications, console: Console) -> None:
         console.print(f"Cross-validation index (Cudeck & Browne 1983): {rep.cvi:.4f}; saturated model: {rep.cvi_saturated:.4f} "
                       f"(smaller is better).")
         console.print()
+
+
+def render_bootstrap(pair, console: Console) -> None:
+    result, boot = pair
+    console.print(Text(f"Bootstrap of {result.model_name}", style="bold underline"))
+    console.print(f"{boot.replications} resamples of {result.n_obs} rows (seed {boot.seed}); {boot.converged} converged, "
+                  f"{boot.replications - boot.converged} did not and are left out of the intervals.")
+    if boot.bollen_stine_p is not None:
+        console.print(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
+                      f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_value(result.fit.p_value)}).")
+    table = _table("Bootstrap intervals (95%)", [("Parameter", "left"), ("Scale", "left"), ("Estimate", "right"),
+                                                 ("Bootstrap SE", "right"), ("Percentile", "right"), ("BCa", "right")])
+    for i in boot.intervals:
+        table.add_row(f"{i.kind.replace('_', ' ')} {', '.join(i.variables)}", i.scale, num(i.estimate), num(i.bootstrap_se),
+                      f"[{num(i.percentile[0])}, {num(i.percentile[1])}]", f"[{num(i.bca[0])}, {num(i.bca[1])}]")
+    console.print(table)
+
+
+def render_power(result, console: Console) -> None:
+    console.print(Text("Power of the RMSEA test (MacCallum, Browne & Sugawara 1996)", style="bold underline"))
+    console.print(f"Test of {result.test} fit: H0 RMSEA = {result.rmsea_null:g} against RMSEA = {result.rmsea_alternative:g}, "
+                  f"df = {result.df}, alpha = {result.alpha:g}.")
+    if result.power is not None:
+        console.print(f"Power with N = {result.n_obs}: {result.power:.3f}")
+    console.print(f"Smallest N for power {result.target_power:g}: {result.required_n}")
+
+
+def render_montecarlo(result, console: Console) -> None:
+    console.print(Text(f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
+                       style="bold underline"))
+    console.print(f"{result.converged} of {result.replications} replications converged "
+                  f"({100 * result.converged / result.replications:.1f}%).")
+    if result.defaulted:
+        console.print("Population values not given in the model file took defaults: " + ", ".join(result.defaulted))
+    table = _table("Per parameter", [("Parameter", "left"), ("Population", "right"), ("Mean estimate", "right"),
+                                     ("Relative bias", "right"), ("SD of estimates", "right"), ("Mean SE", "right"),
+                                     ("95% coverage", "right"), ("Power", "right")])
+    for p in result.parameters:
+        table.add_row(p.label, num(p.population), num(p.mean_estimate), num(p.relative_bias), num(p.sd_estimate),
+                      num(p.mean_se), num(p.coverage), num(p.power))
+    console.print(table)
+
+
+def render_cutoffs(pair, console: Console) -> None:
+    result, cut = pair
+    console.print(Text(f"Model-specific fit cutoffs for {result.model_name}", style="bold underline"))
+    console.print(f"{cut.replications} samples of N = {cut.n_obs} from the fitted model and from the model with "
+                  f"{cut.misspecification} left out (seed {cut.seed}).")
+    table = _table("Cutoffs", [("Index", "left"), ("Level", "right"), ("Cutoff", "right"), ("This model", "right"),
+                               ("Reading", "left")])
+    for c in cut.cutoffs:
+        if c.cutoff is None:
+            reading = "no value separates the two at this level"
+        else:
+            reading = "beyond the cutoff: misfit at least that large is likely" if c.beyond else "within the cutoff"
+        table.add_row(c.index.upper(), f"{100 * c.level:.0f}%", unit(c.cutoff) if c.cutoff is not None else "",
+                      unit(c.observed), reading)
+    console.print(table)
+    console.print("These cutoffs hold for this model, sample size and kind of misspecification only; they are guides, not laws.")

@@ -30,12 +30,20 @@ def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, cluster
         return out
     batches = [list(tasks[i : i + chunk]) for i in range(0, len(tasks), chunk)]
     out = []
-    with ProcessPoolExecutor(max_workers=workers) as pool:
+    with ProcessPoolExecutor(max_workers=workers, initializer=_one_blas_thread) as pool:
         for results in pool.map(_run_batch, [fn] * len(batches), batches):
             out.extend(results)
             if progress:
                 progress(len(results))
     return out
+
+
+def _one_blas_thread() -> None:
+    """Each worker process computes with one BLAS thread: the parallelism is across processes,
+    and for the small matrices of a factor model extra threads only add overhead."""
+    from threadpoolctl import threadpool_limits
+
+    threadpool_limits(1)
 
 
 def _run_batch(fn: Callable, batch: list) -> list:

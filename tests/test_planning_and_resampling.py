@@ -1,0 +1,155 @@
+"""Sample-size planning, simulation, Monte Carlo power, the bootstrap and model-specific cutoffs."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+import cfa_tool
+from cfa_tool.language import parse_model
+from cfa_tool.workflows.montecarlo import monte_carlo_power
+from cfa_tool.workflows.power import required_sample_size, rmsea_power
+from cfa_tool.workflows.simulation import population_from_spec, simulate
+from tests.conftest import THREE_FACTORS
+
+# MacCallum, Browne & Sugawara (1996), Table 4: minimum N for power .80 at alpha .05, tests of
+# close fit (.05 vs .08) and not-close fit (.05 vs .01), by df.  Recalled from memory; our exact
+# noncentral chi-square computation differs from the printed values by at most 0.7% (the original
+# used its own numerical routines).
+MBS_TABLE_4 = {2: (3488, 2382), 4: (1807, 1426), 6: (1238, 1069), 8: (954, 875), 10: (782, 750), 20: (435, 474),
+               30: (314, 366), 40: (252, 307), 50: (214, 268), 75: (161, 210), 100: (132, 178)}
+
+
+@pytest.mark.parametrize("df", sorted(MBS_TABLE_4))
+def test_required_sample_sizes_match_the_published_table(df):
+    close, not_close = MBS_TABLE_4[df]
+    assert required_sample_size(df, 0.05, 0.08) == pytest.approx(close, rel=0.007)
+    assert required_sample_size(df, 0.05, 0.01) == pytest.approx(not_close, rel=0.007)
+
+
+def test_power_rises_with_n_and_the_required_n_reaches_the_target():
+    assert rmsea_power(40, 100, 0.05, 0.08) < rmsea_power(40, 200, 0.05, 0.08) < rmsea_power(40, 400, 0.05, 0.08)
+    n = required_sample_size(40, 0.0, 0.05)
+    assert rmsea_power(40, n, 0.0, 0.05) >= 0.80 > rmsea_power(40, n - 1, 0.0, 0.05)
+
+
+POPULATION = """
+factor f: y1, y2, y3, y4
+factor g: y5, y6, y7, y8
+start loading(f, y2), loading(f, y3), loading(g, y6) = 0.8
+start covariance(f, g) = 0.15
+"""
+
+
+def test_simulation_recovers_population_values():
+    spec = parse_model(POPULATION)
+    population = population_from_spec(spec)
+    data = simulate(spec, 20000, seed=4)
+    result = cfa_tool.fit(spec, data)
+    assert "loading(g, y7)" in population.defaulted and "loading(f, y2)" not in population.defaulted
+    got = {r.variables: r.estimate for r in result.estimates if r.kind in ("loading", "factor_covariance")}
+    assert got[("f", "y2")] == pytest.approx(0.8, abs=0.03)
+    assert got[("g", "y7")] == pytest.approx(0.7, abs=0.03)  # a default population value
+    assert got[("f", "g")] == pytest.approx(0.15, abs=0.03)
+    variances = data.var(ddof=0)
+    assert np.allclose(variances[["y4", "y7", "y8"]], 1.0, atol=0.05)  # defaults give unit item variances
+
+
+def test_simulated_ordinal_and_missing_data():
+    data = simulate(parse_model(POPULATION), 3000, seed=5, categories=5, missing=0.1)
+    values = data.to_numpy()
+    assert set(np.unique(values[~np.isnan(values)])) == {1.0, 2.0, 3.0, 4.0, 5.0}
+    assert np.isnan(values).mean() == pytest.approx(0.1, abs=0.01)
+    counts = data["y1"].value_counts(normalize=True)
+    assert np.allclose(counts.to_numpy(), 0.2, atol=0.03)  # equally likely categories by construction
+
+
+def test_monte_carlo_power_agrees_with_the_analytic_value():
+    # For the factor covariance, power of the Wald z test is about Phi(|cov| / SE - 1.96), with SE from
+    # the expected information at the population values ((2/N) H^-1; Satorra & Saris 1985 style).
+    from scipy import stats
+
+    from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood
+    from cfa_tool.model.implied import StructuredModel
+
+    spec = parse_model(POPULATION)
+    population = population_from_spec(spec)
+    n = 150
+    model = StructuredModel(population.table)
+    likelihood = NormalLikelihood(model, [GroupMoments(population.sigma, np.zeros(8), n)])
+    info = likelihood.evaluate(population.theta).information
+    k = population.table.free_labels.index("covariance(f, g)")
+    se = np.sqrt(2 / n * np.linalg.inv(info)[k, k])
+    analytic = stats.norm.cdf(0.15 / se - 1.96) + stats.norm.cdf(-0.15 / se - 1.96)
+    result = monte_carlo_power(spec, n, replications=300, seed=2, workers=1)
+    row = [p for p in result.parameters if p.label == "covariance(f, g)"][0]
+    mc_error = np.sqrt(analytic * (1 - analytic) / result.converged)
+    assert abs(row.power - analytic) < 3.5 * mc_error
+    assert result.converged >= 295
+    assert abs(row.relative_bias) < 0.1 and 0.9 < row.coverage < 0.99
+
+
+def test_bootstrap_is_reproducible_and_covers_the_estimate(hs_data):
+    from cfa_tool.api import bootstrap
+
+    result, first = bootstrap(THREE_FACTORS, hs_data, replications=40, seed=11, workers=1)
+    _, again = bootstrap(THREE_FACTORS, hs_data, replications=40, seed=11, workers=2)
+    assert first.to_dict() == again.to_dict()  # same seed, same answer, however many workers
+    assert first.converged == 40
+    for interval in first.intervals:
+        assert interval.percentile[0] <= interval.estimate <= interval.percentile[1]
+    # the three-factor model misfits these data (chi-square 85 on 24 df): Bollen-Stine rejects it too
+    assert first.bollen_stine_p < 0.05
+
+
+def test_bollen_stine_p_is_roughly_uniform_under_a_true_model():
+    from cfa_tool.api import bootstrap
+
+    spec = parse_model(POPULATION)
+    ps = []
+    for rep in range(12):
+        data = simulate(spec, 200, seed=100 + rep)
+        _, boot = bootstrap(spec, data, replications=40, seed=rep, bca=False, workers=1)
+        ps.append(boot.bollen_stine_p)
+    # a uniform p has mean .5 and SD .29; with 12 draws the mean's SE is .08
+    assert 0.25 < np.mean(ps) < 0.75
+    assert np.mean(np.array(ps) < 0.05) <= 0.25
+
+
+def test_model_specific_cutoffs(hs_data):
+    from cfa_tool.api import cutoffs
+
+    result, cut = cutoffs(THREE_FACTORS, hs_data, replications=60, seed=3, workers=1)
+    assert "cross-loading" in cut.misspecification
+    rmsea95 = [c for c in cut.cutoffs if c.index == "rmsea" and c.level == 0.95][0]
+    if rmsea95.cutoff is not None:
+        assert 0.0 < rmsea95.cutoff < 0.2
+    assert {c.index for c in cut.cutoffs} == {"cfi", "rmsea", "srmr"}
+    _, again = cutoffs(THREE_FACTORS, hs_data, replications=60, seed=3, workers=2)
+    assert cut.to_dict() == again.to_dict()
+
+
+def test_cluster_gives_the_same_result_as_local_processes():
+    distributed = pytest.importorskip("distributed")
+    spec = parse_model(POPULATION)
+    local = monte_carlo_power(spec, 120, replications=40, seed=6, workers=2)
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, host="127.0.0.1", dashboard_address=None,
+                                  processes=True) as cluster:
+        remote = monte_carlo_power(spec, 120, replications=40, seed=6, cluster=cluster.scheduler_address)
+    assert remote.to_dict() == local.to_dict()
+
+
+def test_cli_planning_commands(tmp_path):
+    from tests.test_cli import run
+
+    model = tmp_path / "pop.cfa"
+    model.write_text(POPULATION)
+    proc = run("simulate", str(model), "--n", "300", "--seed", "3", "--output", str(tmp_path / "sim.csv"))
+    assert proc.returncode == 0, proc.stderr
+    assert (tmp_path / "sim.csv").read_text().splitlines()[0] == "y1,y2,y3,y4,y5,y6,y7,y8"
+    proc = run("power", "--df", "40", "--n", "200", "--json", "-")
+    assert proc.returncode == 0 and '"required_n": 252' in proc.stdout
+    proc = run("power-simulation", str(model), "--n", "100", "--replications", "20", "--workers", "1", "--json", "-")
+    assert proc.returncode == 0, proc.stderr
+    proc = run("bootstrap", str(model), "--data", str(tmp_path / "sim.csv"), "--replications", "20", "--workers", "1")
+    assert proc.returncode == 0 and "Bollen-Stine" in proc.stdout, proc.stderr
