@@ -7,6 +7,7 @@ itself.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 
@@ -106,7 +107,7 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
         order = [groups[0][1].names.index(n) for n in table.observed]
         start = starting_values(table, cov[np.ix_(order, order)], mean[order])
     opt = minimise(likelihood.evaluate, likelihood.value, start, table.lower, table.upper, options.max_iterations,
-                   gradient=likelihood.gradient)
+                   gradient=likelihood.gradient, hessian=getattr(likelihood, "observed_hessian", None))
     return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, opt.message)
 
 
@@ -114,8 +115,28 @@ def fit_moments(spec: Spec, moments: SampleMoments | list[tuple[str | None, Samp
                 options: FitOptions = FitOptions(), group_column: str | None = None) -> FitResult:
     """Fit ``spec`` by normal-theory maximum likelihood to one or several groups' moments."""
     groups = [(None, moments)] if isinstance(moments, SampleMoments) else list(moments)
-    est = estimate(spec, groups, options)
-    return assess(spec, groups, est, options, group_column)
+    with blas_threads_for(len(spec.observed_names)):
+        est = estimate(spec, groups, options)
+        return assess(spec, groups, est, options, group_column)
+
+
+SMALL_MODEL = 80  # indicators; below this one BLAS thread is faster than several
+
+
+def blas_threads_for(p: int):
+    """One BLAS thread for small models, whose matrices are too small to share out."""
+    import contextlib
+
+    if p > SMALL_MODEL:
+        return contextlib.nullcontext()
+    return _thread_controller().limit(limits=1, user_api="blas")
+
+
+@lru_cache(maxsize=1)
+def _thread_controller():
+    from threadpoolctl import ThreadpoolController
+
+    return ThreadpoolController()
 
 
 def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Estimation, options: FitOptions,
@@ -156,8 +177,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         check_information_rank(information, table.free_labels)
         if options.information == "observed" or not likelihood.complete_data:
             # with incomplete data the observed information is the one valid under MAR (Kenward & Molenberghs 1998)
+            closed_form = likelihood.observed_hessian(theta) if hasattr(likelihood, "observed_hessian") else None
             gradient = getattr(likelihood, "gradient", None) or (lambda t: likelihood.evaluate(t).gradient)
-            information = observed_information(gradient, theta)
+            information = closed_form if closed_form is not None else observed_information(gradient, theta)
         cov_theta = parameter_covariance(information, n_total)
         if robust_wanted:
             cov_theta, trace_ug = robust_parts(model, theta, likelihood)

@@ -146,6 +146,54 @@ class NormalLikelihood:
         ev = evaluate_groups(self, theta, with_information=False, with_value=False)
         return np.full(len(theta), np.nan) if ev is None else ev.gradient
 
+    def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
+        """Second derivatives of F in closed form, for one group without a mean structure or
+        higher-order factors (None otherwise):
+
+            F_ab = tr(S^-1 D_a S^-1 D_b) - 2 tr(S^-1 D_b M D_a) + tr(M D_ab)
+
+        with S = Sigma, D = dSigma, M = Sigma^-1 (Sigma - S) Sigma^-1; the last term is
+        nonzero only for pairs of loadings (2 M_ik Phi_jl) and loading-factor covariance
+        pairs (Neudecker & Satorra 1991 give the general second derivatives)."""
+        model = self.model
+        if len(self.groups) != 1 or self.means:
+            return None
+        mats = model.matrices(theta, 0)
+        if mats.B.any():
+            return None
+        parts = self.group_parts(theta, 0)
+        if parts is None:
+            return None
+        d_sigma, d_mu = model.jacobian(theta, 0)
+        q, p, _ = d_sigma.shape
+        expected = parts.information(d_sigma, d_mu)
+        A = parts.sigma_inv @ d_sigma
+        B = parts.M @ d_sigma
+        cross = A.reshape(q, -1) @ B.transpose(0, 2, 1).reshape(q, -1).T
+        second = _second_derivative_contraction(mats, model._codes[0], model._rows[0], model._cols[0], parts.M)
+        J = model._J[0]
+        H = expected - cross - cross.T + J.T @ second @ J
+        return 0.5 * (H + H.T)
+
+
+def _second_derivative_contraction(mats, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, M: np.ndarray) -> np.ndarray:
+    """tr(M d2Sigma / de de') for all pairs of matrix entries e, e' (no higher-order factors)."""
+    E = len(codes)
+    out = np.zeros((E, E))
+    e_load = np.flatnonzero(codes == 0)
+    e_cov = np.flatnonzero(codes == 2)
+    li, lj = rows[e_load], cols[e_load]
+    out[np.ix_(e_load, e_load)] = 2.0 * M[np.ix_(li, li)] * mats.P[np.ix_(lj, lj)]
+    if len(e_cov):
+        MG = M @ mats.L
+        pk, pl = rows[e_cov], cols[e_cov]
+        term = ((lj[:, None] == pk[None, :]) * MG[li[:, None], pl[None, :]]
+                + (lj[:, None] == pl[None, :]) * MG[li[:, None], pk[None, :]])
+        term = 2.0 * term * np.where(pk == pl, 0.5, 1.0)[None, :]
+        out[np.ix_(e_load, e_cov)] = term
+        out[np.ix_(e_cov, e_load)] = term.T
+    return out
+
 
 def evaluate_groups(likelihood, theta: np.ndarray, with_information: bool = True, with_value: bool = True) -> Evaluation | None:
     """Sum value, gradient and (unless not wanted) information over groups from each group's parts."""

@@ -41,6 +41,7 @@ def minimise(
     tolerance: float = 1e-14,
     gradient: Callable[[np.ndarray], np.ndarray] | None = None,
     newton_below: float = 1e-4,
+    hessian: Callable[[np.ndarray], np.ndarray | None] | None = None,
 ) -> OptimizerResult:
     theta = np.clip(np.asarray(start, dtype=float), lower, upper)
     current = evaluate(theta)
@@ -68,7 +69,7 @@ def minimise(
         slow = decrement > 0.05 * previous_decrement
         previous_decrement = decrement
         if gradient is not None and decrement < newton_below and slow:
-            newton = _newton_step(gradient, theta, g, inactive)
+            newton = _newton_step(gradient, theta, g, inactive, hessian)
             if newton is not None:
                 step = newton
         slope = float(g @ step)
@@ -93,17 +94,22 @@ def minimise(
     return _quasi_newton(evaluate, value, theta, current, lower, upper, iterations, max_iterations)
 
 
-def _newton_step(gradient, theta: np.ndarray, g: np.ndarray, inactive: np.ndarray) -> np.ndarray | None:
-    """Newton step with the observed Hessian from forward differences of the analytic gradient;
-    None when that Hessian is not positive definite (then scoring continues)."""
+def _newton_step(gradient, theta: np.ndarray, g: np.ndarray, inactive: np.ndarray, hessian=None) -> np.ndarray | None:
+    """Newton step with the observed Hessian, in closed form where the likelihood offers it and
+    otherwise from forward differences of the analytic gradient; None when that Hessian is not
+    positive definite (then scoring continues)."""
     idx = np.flatnonzero(inactive)
-    H = np.empty((len(idx), len(idx)))
-    for col, k in enumerate(idx):
-        h = 1e-6 * max(1.0, abs(theta[k]))
-        shifted = theta.copy()
-        shifted[k] += h
-        H[:, col] = (gradient(shifted)[idx] - g[idx]) / h
-    H = 0.5 * (H + H.T)
+    full = hessian(theta) if hessian is not None else None
+    if full is not None:
+        H = full[np.ix_(idx, idx)]
+    else:
+        H = np.empty((len(idx), len(idx)))
+        for col, k in enumerate(idx):
+            h = 1e-6 * max(1.0, abs(theta[k]))
+            shifted = theta.copy()
+            shifted[k] += h
+            H[:, col] = (gradient(shifted)[idx] - g[idx]) / h
+        H = 0.5 * (H + H.T)
     try:
         np.linalg.cholesky(H)
     except np.linalg.LinAlgError:

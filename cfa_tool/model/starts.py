@@ -39,6 +39,10 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
             fixed_var[par.variables[0]] = par.offset
 
     std_loading: dict[tuple[str, str], float] = {}
+    n_factors_of: dict[str, int] = {}
+    for items in by_factor_obs.values():
+        for x in items:
+            n_factors_of[x] = n_factors_of.get(x, 0) + 1
     total_var: dict[str, float] = {}
     mean_std: dict[str, float] = {}
     for f, items in by_factor_obs.items():
@@ -50,7 +54,8 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
         else:
             l_std = _principal_axis(R[np.ix_(ix, ix)])
         for x, l in zip(items, l_std):
-            std_loading[(f, x)] = float(l)
+            # an item that loads on several factors shares its common variance among them
+            std_loading[(f, x)] = float(l) / np.sqrt(n_factors_of[x])
         mean_std[f] = float(np.mean(l_std))
         raw = {x: std_loading[(f, x)] * sd[obs_ix[x]] for x in items}
         if f in fixed_var and f not in endogenous:

@@ -1,0 +1,197 @@
+"""Benchmark suite: this project against semopy on the same models and data, in one run.
+
+    python bench/run.py [--repeat 5] [--quick]
+
+Writes bench/results/results.json and bench/results/results.md.  Speed is
+reported as ratios measured in the same process and run, never asserted in
+the test suite.  Each case also checks that both programs reached the same
+chi-square (to 1e-4 relative) where both compute one.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import statistics
+import subprocess
+import sys
+import time
+import warnings
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT))
+
+import cfa_tool  # noqa: E402
+from cfa_tool.assessment.modification import modification_indices  # noqa: E402
+from cfa_tool.data.moments import sample_moments  # noqa: E402
+from cfa_tool.fitting import FitOptions, estimate  # noqa: E402
+from cfa_tool.language import parse_model  # noqa: E402
+from cfa_tool.language.checks import exogenous_factors  # noqa: E402
+
+warnings.filterwarnings("ignore")
+
+
+def timed(fn, repeat: int) -> tuple[float, float, object]:
+    times = []
+    out = None
+    for _ in range(repeat):
+        start = time.perf_counter()
+        out = fn()
+        times.append(time.perf_counter() - start)
+    return min(times), statistics.median(times), out
+
+
+def simulated(items: int, factors: int, n: int, seed: int) -> tuple[str, str, pd.DataFrame]:
+    rng = np.random.default_rng(seed)
+    per = items // factors
+    L = np.zeros((items, factors))
+    for i in range(items):
+        L[i, i // per] = rng.uniform(0.5, 0.9)
+    phi = 0.3 + 0.7 * np.eye(factors)
+    sigma = L @ phi @ L.T + np.diag(1 - (L**2).sum(axis=1))
+    data = pd.DataFrame(rng.multivariate_normal(np.zeros(items), sigma, size=n), columns=[f"v{i + 1}" for i in range(items)])
+    ours = "\n".join(f"factor f{j + 1}: " + ", ".join(f"v{i + 1}" for i in range(j * per, (j + 1) * per)) for j in range(factors))
+    theirs = "\n".join(f"f{j + 1} =~ " + " + ".join(f"v{i + 1}" for i in range(j * per, (j + 1) * per)) for j in range(factors))
+    return ours + "\n", theirs, data
+
+
+def semopy_fit(description: str, data: pd.DataFrame):
+    import semopy
+
+    model = semopy.Model(description)
+    model.fit(data)
+    model.inspect()  # standard errors
+    stats = semopy.calc_stats(model)  # fit indices
+    return float(stats.T["Value"]["chi2"])
+
+
+def case_fit(name, ours_text, theirs_text, data, repeat) -> dict:
+    t_ours, m_ours, r = timed(lambda: cfa_tool.fit(ours_text, data), repeat)
+    t_ref, m_ref, chi_ref = timed(lambda: semopy_fit(theirs_text, data), repeat)
+    return {"case": name, "ours_min_s": t_ours, "ours_median_s": m_ours, "semopy_min_s": t_ref, "semopy_median_s": m_ref,
+            "speedup": t_ref / t_ours, "chi_square_ours": r.fit.chi_square, "chi_square_semopy": chi_ref,
+            "same_chi_square": abs(r.fit.chi_square - chi_ref) <= 1e-4 * max(1.0, chi_ref)}
+
+
+def case_mi(name, ours_text, data, repeat) -> dict:
+    spec = parse_model(ours_text)
+    moments = sample_moments(data, spec.observed_names, "<bench>")
+    est = estimate(spec, [(None, moments)], FitOptions())
+    t, m, mis = timed(lambda: modification_indices(est.model, est.theta, est.likelihood, exogenous_factors(spec)), repeat)
+    return {"case": name, "ours_min_s": t, "ours_median_s": m, "count": len(mis)}
+
+
+def case_fiml(repeat) -> dict:
+    import semopy
+
+    rng = np.random.default_rng(4)
+    n, p, k = 10_000, 20, 4
+    L = np.zeros((p, k))
+    for i in range(p):
+        L[i, i % k] = rng.uniform(0.5, 0.9)
+    sigma = L @ (0.3 + 0.7 * np.eye(k)) @ L.T + np.diag(1 - (L**2).sum(axis=1))
+    X = rng.multivariate_normal(np.zeros(p), sigma, size=n)
+    X[rng.random(X.shape) < 0.15] = np.nan
+    data = pd.DataFrame(X, columns=[f"v{i + 1}" for i in range(p)])
+    ours = "\n".join(f"factor f{j}: " + ", ".join(f"v{i + 1}" for i in range(p) if i % k == j) for j in range(k)) + "\n"
+    theirs = "\n".join(f"f{j} =~ " + " + ".join(f"v{i + 1}" for i in range(p) if i % k == j) for j in range(k))
+    t_ours, m_ours, r = timed(lambda: cfa_tool.fit(ours, data, missing="full-information"), repeat)
+
+    def reference():
+        model = semopy.ModelMeans(theirs)
+        model.fit(data, obj="ML")
+        return model
+
+    t_ref, m_ref, _ = timed(reference, max(1, repeat // 2))
+    return {"case": "FIML N=10000, 20 items, 15% missing", "ours_min_s": t_ours, "ours_median_s": m_ours,
+            "semopy_min_s": t_ref, "semopy_median_s": m_ref, "speedup": t_ref / t_ours}
+
+
+def case_bootstrap(ours_text, theirs_text, data, replications) -> dict:
+    import semopy
+
+    start = time.perf_counter()
+    cfa_tool.bootstrap(ours_text, data, replications=replications, seed=1, bollen_stine=False, bca=False)
+    ours = time.perf_counter() - start
+    rng = np.random.default_rng(1)
+    reference_reps = max(20, replications // 20)
+    start = time.perf_counter()
+    for _ in range(reference_reps):
+        sample = data.iloc[rng.integers(0, len(data), len(data))]
+        semopy.Model(theirs_text).fit(sample)
+    per_fit = (time.perf_counter() - start) / reference_reps
+    return {"case": f"{replications} bootstrap refits of case 1 (2 cores)", "ours_min_s": ours, "ours_median_s": ours,
+            "semopy_min_s": per_fit * replications, "semopy_median_s": per_fit * replications,
+            "speedup": per_fit * replications / ours, "note": f"semopy time extrapolated from {reference_reps} refits, one core"}
+
+
+def case_cold_start(repeat) -> dict:
+    model = ROOT / "bench" / "results" / "hs.cfa"
+    data = ROOT / "bench" / "results" / "hs.csv"
+    env = dict(os.environ, PYTHONPATH=str(ROOT))
+
+    def run():
+        subprocess.run([sys.executable, "-m", "cfa_tool", "fit", str(model), "--data", str(data)], check=True,
+                       capture_output=True, env=env)
+
+    def bare():
+        subprocess.run([sys.executable, "-c", "pass"], check=True, capture_output=True)
+
+    t, m, _ = timed(run, repeat)
+    b, _, _ = timed(bare, repeat)
+    return {"case": "command-line cold start, fit of case 1 with terminal report", "ours_min_s": t, "ours_median_s": m,
+            "python_startup_s": b}
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--repeat", type=int, default=5)
+    parser.add_argument("--quick", action="store_true", help="skip the 120-item case and use 200 bootstrap refits")
+    args = parser.parse_args()
+    from semopy.examples import holzinger39
+
+    hs = holzinger39.get_data()
+    hs_ours = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+    hs_theirs = "visual =~ x1 + x2 + x3\ntextual =~ x4 + x5 + x6\nspeed =~ x7 + x8 + x9"
+    (ROOT / "bench" / "results").mkdir(exist_ok=True)
+    (ROOT / "bench" / "results" / "hs.cfa").write_text(hs_ours)
+    hs[[f"x{i}" for i in range(1, 10)]].to_csv(ROOT / "bench" / "results" / "hs.csv", index=False)
+    rows = [case_fit("Holzinger-Swineford, 9 items, N = 301", hs_ours, hs_theirs, hs, args.repeat)]
+    sizes = [(30, 3), (60, 6)] + ([] if args.quick else [(120, 12)])
+    growth = []
+    for items, factors in sizes:
+        ours, theirs, data = simulated(items, factors, 1000, items)
+        row = case_fit(f"simulated, {items} items, {factors} factors, N = 1000", ours, theirs, data, max(2, args.repeat // 2))
+        rows.append(row)
+        growth.append((items, row["ours_min_s"]))
+    rows.append(case_mi("all modification indices, case 1", hs_ours, hs, args.repeat))
+    ours60, _, data60 = simulated(60, 6, 1000, 60)
+    rows.append(case_mi("all modification indices, 60 items", ours60, data60, max(2, args.repeat // 2)))
+    rows.append(case_fiml(max(2, args.repeat // 2)))
+    rows.append(case_bootstrap(hs_ours, hs_theirs, hs, 200 if args.quick else 1000))
+    rows.append(case_cold_start(args.repeat))
+    x = np.log([g[0] for g in growth])
+    y = np.log([g[1] for g in growth])
+    exponent = float(np.polyfit(x, y, 1)[0]) if len(growth) >= 2 else float("nan")
+    out = ROOT / "bench" / "results"
+    out.mkdir(exist_ok=True)
+    (out / "results.json").write_text(json.dumps({"cases": rows, "growth_exponent": exponent}, indent=2) + "\n")
+    lines = ["| case | ours min (s) | ours median (s) | semopy min (s) | ratio (semopy / ours) | same chi-square |",
+             "| --- | ---: | ---: | ---: | ---: | --- |"]
+    for r in rows:
+        lines.append(f"| {r['case']} | {r['ours_min_s']:.4f} | {r['ours_median_s']:.4f} | "
+                     f"{r.get('semopy_min_s', float('nan')):.4f} | {r.get('speedup', float('nan')):.1f} | "
+                     f"{r.get('same_chi_square', '')} |")
+    lines.append("")
+    lines.append(f"Growth of fit time with the number of items (30 to {growth[-1][0]}): exponent {exponent:.2f}.")
+    (out / "results.md").write_text("\n".join(lines) + "\n")
+    print("\n".join(lines))
+
+
+if __name__ == "__main__":
+    main()
