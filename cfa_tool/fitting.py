@@ -201,6 +201,10 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             prefix = f"group '{table.groups[g]}': " if multi else ""
             warnings.extend(prefix + w for w in admissibility_warnings(m, table.observed, table.latent))
     else:
+        # a model that is not identified often shows itself by not converging: say so when it is the cause
+        evaluation = likelihood.evaluate(theta)
+        if evaluation is not None and np.all(np.isfinite(evaluation.information)):
+            check_information_rank(evaluation.information, table.free_labels)
         warnings.append(f"the estimation did not converge ({est.message}); no result from it should be interpreted")
 
     nan = float("nan")

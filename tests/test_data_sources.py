@@ -22,7 +22,7 @@ def test_spss_file_with_value_labels_and_user_missing_codes(tmp_path, hs_items):
     import pyreadstat
 
     data = hs_items[ITEMS].round(4).copy()
-    data["rating"] = np.tile([1.0, 2.0, 3.0, 4.0, 5.0], len(data) // 5 + 1)[: len(data)]
+    data["rating"] = pd.qcut(data["x3"], 5, labels=False).astype(float) + 1  # a 5-point rating of the same ability
     data.loc[[0, 1], "x1"] = -99.0  # declared as user-missing in the file
     path = tmp_path / "hs.sav"
     pyreadstat.write_sav(data, str(path), column_labels={"x1": "Visual perception"},
@@ -32,6 +32,7 @@ def test_spss_file_with_value_labels_and_user_missing_codes(tmp_path, hs_items):
     assert result.n_obs == 299 and result.data.rows_dropped == 2
     assert result.labels["variables"] == {"x1": "Visual perception"}
     rated = cfa_tool.fit("factor f: x1, x2, rating\n", path)
+    assert rated.converged
     assert rated.labels["values"]["rating"][5.0] == "strongly agree"
 
 
