@@ -179,7 +179,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             # with incomplete data the observed information is the one valid under MAR (Kenward & Molenberghs 1998)
             closed_form = likelihood.observed_hessian(theta) if hasattr(likelihood, "observed_hessian") else None
             gradient = getattr(likelihood, "gradient", None) or (lambda t: likelihood.evaluate(t).gradient)
-            information = closed_form if closed_form is not None else observed_information(gradient, theta)
+            information = closed_form if closed_form is not None else observed_information(
+                gradient, theta, central=likelihood.complete_data)
         cov_theta = parameter_covariance(information, n_total)
         if robust_wanted:
             cov_theta, trace_ug = robust_parts(model, theta, likelihood)

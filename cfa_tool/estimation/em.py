@@ -23,21 +23,28 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
     mu = np.nanmean(rows, axis=0)
     var = np.nanvar(rows, axis=0)
     sigma = np.diag(np.where(var > 0, var, 1.0))
-    missing = ~data.observed  # (P, p)
-    mm = missing[:, :, None] & missing[:, None, :]
-    idx = np.arange(p)
+    n_missing = p - mask.sum(axis=1)
+    # rows grouped by how many answers they miss, with the columns they miss
+    groups = []
+    for m in np.unique(n_missing):
+        if m == 0:
+            continue
+        which = np.flatnonzero(n_missing == m)
+        groups.append((which, np.nonzero(~mask[which])[1].reshape(len(which), m)))
     for iteration in range(1, max_iterations + 1):
         precision = np.linalg.inv(sigma)
-        batch = np.where(mm, precision[None], 0.0)
-        batch[:, idx, idx] = np.where(missing, batch[:, idx, idx], 1.0)
-        cond_cov = np.where(mm, np.linalg.inv(batch), 0.0)  # (L_mm)^-1 embedded
         dev = np.where(mask, rows - mu, 0.0)
-        # correction for the missing part: -(L_mm)^-1 L_mo (x_o - mu_o)
-        shift = -np.einsum("rij,rj->ri", cond_cov[data.index], dev @ precision)
-        completed = mu + dev + shift
+        completed = mu + dev
+        extra = np.zeros((p, p))
+        for which, miss in groups:
+            block = precision[miss[:, :, None], miss[:, None, :]]  # L_mm of each row
+            cond = np.linalg.inv(block)  # covariance of the missing part given the observed part
+            side = np.einsum("rkp,rp->rk", precision[miss], dev[which])  # L_mo (x_o - mu_o)
+            completed[which[:, None], miss] = mu[miss] - np.einsum("rkj,rj->rk", cond, side)
+            np.add.at(extra, (miss[:, :, None], miss[:, None, :]), cond)
         new_mu = completed.mean(axis=0)
         centred = completed - new_mu
-        new_sigma = centred.T @ centred / n + np.tensordot(data.counts, cond_cov, axes=1) / n
+        new_sigma = (centred.T @ centred + extra) / n
         change = max(np.max(np.abs(new_mu - mu)), np.max(np.abs(new_sigma - sigma)))
         mu, sigma = new_mu, new_sigma
         if change < tolerance * max(1.0, np.max(np.abs(sigma))):

@@ -106,20 +106,47 @@ class MissingDataLikelihood:
     def gradient(self, theta: np.ndarray) -> np.ndarray:
         """The gradient alone, row by row (no information matrix): what finite-difference
         second derivatives need.  With r_i = x_i - mu (observed part) and u_i = A_i r_i:
-        df/dSigma = sum_k w_k A_k - (1/N) sum_i u_i u_i',  df/dmu = -(2/N) sum_i u_i."""
+        df/dSigma = (1/N) sum_i A_i - (1/N) sum_i u_i u_i',  df/dmu = -(2/N) sum_i u_i.
+        A_i comes from the precision matrix L by the Schur complement, row by row, without
+        forming every pattern's p x p matrix: u_i = L r_i - L_.m C_i L_m. r_i (observed part),
+        C_i = (L_mm)^-1."""
         q = len(theta)
         total = np.zeros(q)
         for g, w_group in enumerate(self.weights):
             data = self.patterns[g]
             mats = self.model.matrices(theta, g)
-            A, _ = embedded_inverse(mats.implied_covariance(), data.observed)
-            resid = np.where(np.isnan(data.rows), 0.0, data.rows - mats.implied_mean())
-            u = np.einsum("rij,rj->ri", A[data.index], resid)
+            sigma = mats.implied_covariance()
+            precision = np.linalg.inv(sigma)
+            rows = data.rows
+            observed = ~np.isnan(rows)
             n = data.n_obs
-            M = np.tensordot(data.counts / n, A, axes=1) - u.T @ u / n
+            resid = np.where(observed, rows - mats.implied_mean(), 0.0)
+            v = resid @ precision
+            u = v.copy()
+            mean_A = precision * (observed.T.astype(float) @ observed.astype(float)) / n
+            for which, miss in _missing_groups(observed):
+                block = precision[miss[:, :, None], miss[:, None, :]]
+                cond = np.linalg.inv(block)
+                side = precision[miss] * observed[which][:, None, :]  # L_m. restricted to observed columns
+                z = np.einsum("rkj,rj->rk", cond, v[which[:, None], miss])
+                u[which] -= np.einsum("rk,rkp->rp", z, side)
+                mean_A -= np.einsum("rkp,rkl,rlq->pq", side, cond, side, optimize=True) / n
+            u = np.where(observed, u, 0.0)
+            M = mean_A - u.T @ u / n
             d_sigma, d_mu = self.model.jacobian(theta, g)
             total += w_group * (d_sigma.reshape(q, -1) @ M.ravel() - 2.0 * d_mu @ u.mean(axis=0))
         return total
+
+
+def _missing_groups(observed: np.ndarray):
+    """(rows, their missing columns) for each number of missing answers above zero."""
+    p = observed.shape[1]
+    n_missing = p - observed.sum(axis=1)
+    for m in np.unique(n_missing):
+        if m == 0:
+            continue
+        which = np.flatnonzero(n_missing == m)
+        yield which, np.nonzero(~observed[which])[1].reshape(len(which), m)
 
 
 def fiml_log_likelihood(likelihood: MissingDataLikelihood, theta: np.ndarray) -> float:

@@ -43,21 +43,36 @@ def pattern_data(rows: np.ndarray) -> PatternData:
 def embedded_inverse(sigma: np.ndarray, observed: np.ndarray) -> tuple[np.ndarray, np.ndarray] | None:
     """For each pattern, Sigma_oo^-1 embedded in p x p (zeros outside) and log|Sigma_oo|.
 
-    Missing rows and columns are replaced by the identity so that one batched
-    Cholesky factorisation serves every pattern.
+    From the full precision matrix L = Sigma^-1 by the Schur complement:
+    Sigma_oo^-1 = L_oo - L_om (L_mm)^-1 L_mo and |Sigma_oo| = |Sigma| |L_mm|, so each
+    pattern needs only the inverse of its small missing block; patterns with the
+    same number of missing items are handled in one batch.
     """
     P, p = observed.shape
-    outer = observed[:, :, None] & observed[:, None, :]
-    batch = np.where(outer, sigma[None, :, :], 0.0)
-    idx = np.arange(p)
-    batch[:, idx, idx] = np.where(observed, batch[:, idx, idx], 1.0)
     try:
-        chol = np.linalg.cholesky(batch)
+        chol = np.linalg.cholesky(sigma)
     except np.linalg.LinAlgError:
         return None
-    diag = np.diagonal(chol, axis1=1, axis2=2)
-    if np.any(diag <= 0):
+    if np.any(np.diag(chol) <= 0):
         return None
-    logdet = 2.0 * np.sum(np.log(diag), axis=1)
-    inv = np.linalg.inv(batch)
-    return np.where(outer, inv, 0.0), logdet
+    logdet_sigma = 2.0 * float(np.sum(np.log(np.diag(chol))))
+    precision = np.linalg.inv(sigma)
+    precision = 0.5 * (precision + precision.T)
+    A = np.broadcast_to(precision, (P, p, p)).copy()
+    logdet = np.full(P, logdet_sigma)
+    n_missing = p - observed.sum(axis=1)
+    for m in np.unique(n_missing):
+        if m == 0:
+            continue
+        which = np.flatnonzero(n_missing == m)
+        miss = np.nonzero(~observed[which])[1].reshape(len(which), m)  # missing columns of each pattern
+        block = precision[miss[:, :, None], miss[:, None, :]]  # (k, m, m) = L_mm
+        try:
+            block_chol = np.linalg.cholesky(block)
+        except np.linalg.LinAlgError:
+            return None
+        logdet[which] += 2.0 * np.sum(np.log(np.diagonal(block_chol, axis1=1, axis2=2)), axis=1)
+        side = precision[miss]  # (k, m, p) = L_m.
+        A[which] -= np.swapaxes(side, 1, 2) @ np.linalg.solve(block, side)
+    outer = observed[:, :, None] & observed[:, None, :]
+    return np.where(outer, A, 0.0), logdet

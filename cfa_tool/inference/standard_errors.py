@@ -26,16 +26,22 @@ class Inference:
     ci_high: np.ndarray
 
 
-def observed_information(gradient: Callable[[np.ndarray], np.ndarray], theta: np.ndarray) -> np.ndarray:
-    """Second derivatives of F by central differences of the analytic gradient."""
+def observed_information(gradient: Callable[[np.ndarray], np.ndarray], theta: np.ndarray, central: bool = True) -> np.ndarray:
+    """Second derivatives of F by differences of the analytic gradient (central, or forward
+    from the gradient at theta when each gradient is expensive)."""
     q = len(theta)
     H = np.zeros((q, q))
+    base = None if central else gradient(theta)
     for k in range(q):
-        h = 1e-5 * max(1.0, abs(theta[k]))
-        up, down = theta.copy(), theta.copy()
+        h = (1e-5 if central else 1e-6) * max(1.0, abs(theta[k]))
+        up = theta.copy()
         up[k] += h
-        down[k] -= h
-        H[:, k] = (gradient(up) - gradient(down)) / (2 * h)
+        if central:
+            down = theta.copy()
+            down[k] -= h
+            H[:, k] = (gradient(up) - gradient(down)) / (2 * h)
+        else:
+            H[:, k] = (gradient(up) - base) / h
     return 0.5 * (H + H.T)
 
 
