@@ -100,7 +100,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
         keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
         variables: list[str] | None = None, matrix: str = "covariance", sds=None, divisor: str = "n-1",
-        **options) -> FitResult:
+        ordinal: str | list[str] | None = None, ordinal_estimator: str = "diagonally-weighted", **options) -> FitResult:
     """Fit a confirmatory factor model by maximum likelihood.
 
     ``model``: model text, a path to a model file, or a parsed Spec.
@@ -112,6 +112,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ``divisor`` ('n-1' as published, or 'n').
     ``group``: a column whose values define groups (multi-group fit with a mean structure);
     ``reference_group``: the group whose factor means are fixed at zero.
+    ``ordinal``: 'all' or a list of items to treat as ordinal (as does an 'ordinal' statement in
+    the model): thresholds and polychoric correlations, fitted by ``ordinal_estimator``
+    ('diagonally-weighted' or 'unweighted' least squares) with robust standard errors.
     ``options``: ``information``, ``test``, ``missing``, ``mi_threshold``, ``mi_top``, ``max_iterations``.
     """
     fit_options = make_options(options)
@@ -134,6 +137,21 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
+    ordinal_items = _ordinal_items(spec, ordinal)
+    if ordinal_items:
+        if group is not None or fit_options.missing != "listwise" or fit_options.test != "normal":
+            raise OptionError("ordinal items are fitted with listwise deletion in one group; groups, full-information ML "
+                              "and the Satorra-Bentler test are for continuous items")
+        continuous = [x for x in spec.observed_names if x not in ordinal_items]
+        if continuous:
+            raise OptionError(f"mixing continuous and ordinal indicators is not supported; '{continuous[0]}' is not "
+                              f"declared ordinal (declare every indicator ordinal, or none)")
+        from cfa_tool.data.polychoric import ordinal_moments
+        from cfa_tool.fitting import fit_ordinal
+
+        moments = ordinal_moments(frame, spec.observed_names, source)
+        result = fit_ordinal(spec, moments, fit_options, ordinal_estimator)
+        return replace(result, warnings=tuple(notes) + result.warnings)
     groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
     notes += group_notes
     result = fit_moments(spec, groups, fit_options, group_column=group)
@@ -149,6 +167,18 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     return replace(result, warnings=tuple(notes) + result.warnings,
                    missing_data=summary if summary["n_patterns"] > 1 or not all(summary["coverage"].values()) else None,
                    labels=labels if labels["variables"] or labels["values"] else None)
+
+
+def _ordinal_items(spec: Spec, ordinal) -> set[str]:
+    items = {n.text for n in spec.ordinal}
+    if ordinal == "all":
+        items |= set(spec.observed_names)
+    elif ordinal:
+        for name in ([ordinal] if isinstance(ordinal, str) else ordinal):
+            if name not in spec.observed_names:
+                raise OptionError(f"'{name}' is given as ordinal but is not an indicator in the model")
+            items.add(name)
+    return items
 
 
 def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):

@@ -160,6 +160,10 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--mi-top", type=int, default=None, metavar="N", help="show at most N modification indices")
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
     _add_test_option(p)
+    p.add_argument("--ordinal", metavar="ITEMS",
+                   help="'all' or comma-separated items to treat as ordinal (thresholds and polychoric correlations)")
+    p.add_argument("--ordinal-estimator", choices=("diagonally-weighted", "unweighted"), default="diagonally-weighted",
+                   help="least squares for ordinal items (default diagonally-weighted)")
     p.add_argument("--missing", choices=("listwise", "full-information"), default="listwise",
                    help="rows with missing answers: left out (listwise, the default) or used by full-information ML")
 
@@ -350,6 +354,12 @@ def _progress(label: str):
     return bar()
 
 
+def _ordinal_arg(text: str | None):
+    if not text:
+        return None
+    return "all" if text.strip() == "all" else [t.strip() for t in text.split(",") if t.strip()]
+
+
 def _check_output(args: argparse.Namespace, inputs: list[str]) -> None:
     targets = [getattr(args, name, None) for name in REPORT_OPTIONS]
     for target in targets:
@@ -445,7 +455,7 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
     result = fit(model, data, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
                  missing_codes=args.missing_codes, keep=args.keep, information=args.information,
                  mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=args.test,
-                 missing=args.missing)
+                 missing=args.missing, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
     if not result.converged:
         raise EstimationError(
             f"the estimation did not converge ({result.message}); try start values closer to the expected solution "

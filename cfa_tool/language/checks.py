@@ -48,6 +48,7 @@ def existing_parameters(spec: Spec) -> set[tuple]:
 
 def check_spec(spec: Spec) -> None:
     _check_factors(spec)
+    _check_ordinal(spec)
     _check_pairs(spec)
     _check_references(spec)
     _check_contradictions(spec)
@@ -86,6 +87,15 @@ def _check_factors(spec: Spec) -> None:
     for name in seen:
         if name not in state:
             visit(name, [name])
+
+
+def _check_ordinal(spec: Spec) -> None:
+    observed = set(spec.observed_names)
+    for name in spec.ordinal:
+        if name.text in spec.factor_names:
+            raise _fail(spec, f"'{name}' is a factor; only indicators can be ordinal", name.location)
+        if name.text not in observed:
+            raise _unknown_name(spec, name.text, name.location)
 
 
 def _known_names(spec: Spec) -> list[str]:

@@ -34,7 +34,7 @@ from cfa_tool.language.spec import (
 from cfa_tool.resources import resource_dir
 
 STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale", "in",
-                   "invariant", "noninvariant")
+                   "invariant", "noninvariant", "ordinal")
 
 # Plain words for the grammar's terminals, used in "expected ..." messages.
 _TERMINAL_WORDS = {
@@ -186,6 +186,7 @@ class _Builder:
         scaling: list[ScaleSetting] = []
         invariant: list[str] = []
         noninvariant: list[ParameterRef] = []
+        ordinal: list[Name] = []
         for stmt in tree.children:
             kind = stmt.data
             self.group = None
@@ -235,6 +236,8 @@ class _Builder:
                         invariant.append(word.text)
             elif kind == "noninvariant_stmt":
                 noninvariant.extend(self.refs(stmt.children[0]))
+            elif kind == "ordinal_stmt":
+                ordinal.extend(self.name_list(stmt.children[0]))
             else:  # pragma: no cover - grammar and builder out of step
                 raise self.error(f"statement '{kind}' is not handled", stmt)
         if not factors:
@@ -257,6 +260,7 @@ class _Builder:
             scaling=tuple(scaling),
             invariant=tuple(invariant),
             noninvariant=tuple(noninvariant),
+            ordinal=tuple(ordinal),
             lines=self.lines,
         )
 

@@ -117,6 +117,7 @@ class Spec:
     scaling: tuple[ScaleSetting, ...] = ()
     invariant: tuple[str, ...] = ()
     noninvariant: tuple[ParameterRef, ...] = ()
+    ordinal: tuple[Name, ...] = ()
     lines: tuple[str, ...] = field(default=(), repr=False, compare=False)
 
     @property

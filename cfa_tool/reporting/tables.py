@@ -59,6 +59,8 @@ def fit_table(result) -> ReportTable:
         ["  test of close fit (RMSEA <= .05)", f"p {p_phrase(f.rmsea_p_close)}", ""],
         ["SRMR", unit(f.srmr), "<= .08"],
     ]
+    if missing(f.rmsea_p_close):
+        rows = [r for r in rows if not r[0].startswith("  test of close fit")]
     r = result.robust
     if r is not None:
         rlow, rhigh = r.rmsea_robust_ci90
@@ -69,12 +71,11 @@ def fit_table(result) -> ReportTable:
             ["Robust CFI / TLI", f"{unit(r.cfi_robust)} / {unit(r.tli_robust)}", ">= .95"],
             ["Robust RMSEA [90% interval]", f"{unit(r.rmsea_robust)} [{unit(rlow)}, {unit(rhigh)}]", "<= .06"],
         ]
-    rows += [
-        ["Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", ""],
-        ["Log-likelihood", num(f.log_likelihood), ""],
-        ["AIC / BIC / adjusted BIC", f"{num(f.aic)} / {num(f.bic)} / {num(f.sabic)}", "lower is better"],
-        ["Free parameters", str(f.n_free_parameters), ""],
-    ]
+    rows.append(["Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", ""])
+    if not missing(f.log_likelihood):  # least-squares estimators have no likelihood
+        rows += [["Log-likelihood", num(f.log_likelihood), ""],
+                 ["AIC / BIC / adjusted BIC", f"{num(f.aic)} / {num(f.bic)} / {num(f.sabic)}", "lower is better"]]
+    rows.append(["Free parameters", str(f.n_free_parameters), ""])
     return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")], rows, GUIDE_NOTE)
 
 

@@ -1,0 +1,111 @@
+"""Ordinal items: thresholds and polychoric correlations, their asymptotic covariance, and
+least squares on them.  semopy's own polychoric routine calls scipy.stats.mvn.mvnun, which
+SciPy 1.17 removed, so the independent check here maximises the same likelihood with SciPy's
+multivariate normal distribution instead."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+from scipy import optimize, stats
+
+import cfa_tool
+from cfa_tool.data.polychoric import ordinal_moments
+from cfa_tool.errors import DataError, OptionError
+
+CUTS = [np.array([-1.0, 0.0, 1.0]), np.array([-0.5, 0.5]), np.array([0.2])]
+R3 = np.array([[1.0, 0.5, 0.3], [0.5, 1.0, 0.4], [0.3, 0.4, 1.0]])
+
+
+def _ordinal(n: int, seed: int, corr=R3, cuts=CUTS) -> pd.DataFrame:
+    z = np.random.default_rng(seed).multivariate_normal(np.zeros(len(corr)), corr, size=n)
+    return pd.DataFrame({f"y{j + 1}": np.searchsorted(cuts[j % len(cuts)], z[:, j]) + 1 for j in range(len(corr))}).astype(float)
+
+
+def test_polychoric_correlations_recover_the_population():
+    om = ordinal_moments(_ordinal(20000, 1), ("y1", "y2", "y3"), "sim")
+    lower = np.tril_indices(3, -1)
+    assert np.allclose(om.correlations[lower], R3[lower], atol=0.025)
+    for tau, cut in zip(om.thresholds, CUTS):
+        assert np.allclose(tau, cut, atol=0.03)
+
+
+def test_polychoric_by_an_independent_integrator():
+    data = _ordinal(400, 2)
+    om = ordinal_moments(data, ("y1", "y2", "y3"), "sim")
+    x, y = data["y1"].to_numpy().astype(int) - 1, data["y2"].to_numpy().astype(int) - 1
+    table = np.zeros((4, 3))
+    np.add.at(table, (x, y), 1)
+    a = np.concatenate([[-8], om.thresholds[0], [8]])
+    b = np.concatenate([[-8], om.thresholds[1], [8]])
+
+    def negative(rho):
+        dist = stats.multivariate_normal(mean=[0, 0], cov=[[1, rho], [rho, 1]])
+        F = np.array([[dist.cdf([ai, bj]) for bj in b] for ai in a])
+        pi = F[1:, 1:] - F[:-1, 1:] - F[1:, :-1] + F[:-1, :-1]
+        return -np.sum(table * np.log(np.clip(pi, 1e-300, None)))
+
+    rho = optimize.minimize_scalar(negative, bounds=(-0.99, 0.99), method="bounded", options={"xatol": 1e-8}).x
+    assert om.correlations[1, 0] == pytest.approx(rho, abs=2e-4)
+
+
+def test_asymptotic_covariance_matches_monte_carlo_spread():
+    # the variance of sqrt(N)(r - rho) over replications estimates the diagonal of Gamma
+    estimates = [ordinal_moments(_ordinal(400, 100 + s), ("y1", "y2", "y3"), "sim").correlations[np.tril_indices(3, -1)]
+                 for s in range(150)]
+    spread = np.var(estimates, axis=0) * 400
+    gamma = ordinal_moments(_ordinal(20000, 7), ("y1", "y2", "y3"), "sim").gamma
+    # with 150 replications a variance is known to about +/- 12% (one SE)
+    assert np.allclose(spread, np.diag(gamma), rtol=0.35)
+
+
+def _two_factor_ordinal(n: int, seed: int) -> pd.DataFrame:
+    L = np.zeros((8, 2))
+    L[:4, 0] = [0.8, 0.7, 0.6, 0.75]
+    L[4:, 1] = [0.7, 0.8, 0.65, 0.6]
+    S = L @ np.array([[1, 0.4], [0.4, 1]]) @ L.T
+    S[np.diag_indices(8)] = 1
+    return _ordinal(n, seed, S, [np.array([-1.2, -0.3, 0.5, 1.3])])
+
+
+@pytest.mark.parametrize("method", ["diagonally-weighted", "unweighted"])
+def test_least_squares_recovers_a_known_model(method):
+    result = cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\nscale latent by variance\n", _two_factor_ordinal(3000, 3),
+                          ordinal="all", ordinal_estimator=method)
+    est = {r.variables: r for r in result.estimates}
+    truth = {("f", "y1"): 0.8, ("f", "y3"): 0.6, ("g", "y6"): 0.8, ("g", "y8"): 0.6, ("f", "g"): 0.4}
+    for key, value in truth.items():
+        assert abs(est[key].estimate - value) < 4 * est[key].se + 0.01, key
+    assert est[("y1",)].estimate == pytest.approx(1 - est[("f", "y1")].estimate ** 2, abs=1e-9)  # unit latent-response variance
+    assert result.robust.p_value_scaled > 0.001
+    assert "polychoric" in result.estimator
+
+
+def test_adjusted_test_rejects_a_wrong_model():
+    result = cfa_tool.fit("factor f: y1..y8\n", _two_factor_ordinal(3000, 4), ordinal="all")
+    assert result.robust.p_value_scaled < 1e-6
+
+
+def test_ordinal_alpha_uses_the_polychoric_matrix():
+    from cfa_tool.assessment.reliability import cronbach_alpha
+
+    data = _two_factor_ordinal(1000, 5)
+    result = cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\nordinal y1..y8\n", data)
+    f = [r for r in result.groups[0].reliability if r.factor == "f"][0]
+    om = ordinal_moments(data, tuple(f"y{i}" for i in range(1, 9)), "x")
+    assert f.alpha == pytest.approx(cronbach_alpha(om.correlations[:4, :4]), rel=1e-10)
+
+
+def test_ordinal_errors():
+    data = _two_factor_ordinal(300, 6)
+    one = data.assign(y8=1.0)
+    with pytest.raises(DataError, match="'y8' has a single category"):
+        cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\n", one, ordinal="all")
+    many = data.assign(y1=np.arange(300) % 20)
+    with pytest.raises(DataError, match="'y1' has 20 categories"):
+        cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\n", many, ordinal="all")
+    with pytest.raises(OptionError, match="mixing continuous and ordinal"):
+        cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\nordinal y1..y4\n", data)
+    with pytest.raises(OptionError, match="one group"):
+        cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\n", data.assign(site=np.arange(300) % 2), ordinal="all", group="site")
