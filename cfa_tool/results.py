@@ -110,6 +110,7 @@ class GroupResult:
     def reliability_dict(self) -> dict:
         return {"factors": [clean(r.to_dict()) for r in self.reliability], "htmt": [clean(h.to_dict()) for h in self.htmt]}
 
+
     def diagnostics_dict(self) -> dict:
         return {
             "normalized_residuals": clean(self.normalized_residuals.tolist()) if self.normalized_residuals is not None else None,
@@ -226,6 +227,7 @@ class FitResult:
             normality = self.groups[0].normality
             out["normality"] = clean(normality.to_dict()) if normality is not None else None
             out["reliability"] = self.groups[0].reliability_dict()
+            out["reliability"]["scale"] = "latent responses (ordinal)" if "polychoric" in self.estimator else "observed items"
             out["diagnostics"] = self.groups[0].diagnostics_dict()
         out["missing_data"] = clean(self.missing_data) if self.missing_data is not None else None
         if self.labels is not None:

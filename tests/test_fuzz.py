@@ -48,6 +48,7 @@ statement = st.one_of(
     name_list.map(lambda s: f"invariant {s}"),
     refs.map(lambda s: f"noninvariant {s}"),
     quoted.map(lambda s: f"name {s}"),
+    name_list.map(lambda s: f"ordinal {s}"),
     st.text(max_size=20),
 )
 model_text = st.lists(statement, min_size=0, max_size=8).map("\n".join)
@@ -115,7 +116,7 @@ valid_models = st.sampled_from([
 
 @settings(max_examples=FIT_EXAMPLES, **SETTINGS)
 @given(valid_models, data_frames(), st.sampled_from([{}, {"missing": "full-information"}, {"test": "satorra-bentler"},
-                                                     {"group": "site"}, {"information": "observed"}]))
+                                                     {"group": "site"}, {"information": "observed"}, {"ordinal": "all"}]))
 def test_fits_of_random_data(model, frame, options):
     try:
         cfa_tool.fit(model, frame, **options)

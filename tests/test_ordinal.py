@@ -109,3 +109,10 @@ def test_ordinal_errors():
         cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\nordinal y1..y4\n", data)
     with pytest.raises(OptionError, match="one group"):
         cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\n", data.assign(site=np.arange(300) % 2), ordinal="all", group="site")
+
+
+def test_just_identified_ordinal_model_has_nothing_to_test():
+    # found by the fuzzer: three items on one factor leave no degrees of freedom
+    result = cfa_tool.fit("factor f: y1..y3\n", _ordinal(500, 9), ordinal="all")
+    assert result.converged and result.fit.df == 0
+    assert result.fit.chi_square == pytest.approx(0.0, abs=1e-8)

@@ -71,6 +71,9 @@ def adjusted_test(statistic: float, df: int, D: np.ndarray | None, weights: np.n
     UG = U @ gamma
     a1 = float(np.trace(UG))
     a2 = float(np.sum(UG * UG.T))
+    if df <= 0 or a1 <= 0 or a2 <= 0:  # a saturated model has nothing to test
+        nan = float("nan")
+        return AdjustedTest(statistic, df, statistic, nan, statistic, nan, nan, nan)
     shift_scale = np.sqrt(df / a2)
     shifted = shift_scale * statistic + (df - shift_scale * a1)
     d_star = a1**2 / a2

@@ -167,10 +167,13 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
         fl = "" if r.fornell_larcker_holds is None else ("yes" if r.fornell_larcker_holds else "no")
         body.append([r.factor, str(len(r.items)), unit(r.omega), unit(r.omega_total), unit(r.composite_reliability),
                      unit(r.average_variance_extracted), fl, unit(r.alpha)])
-    note = ("Omega: share of the item sum's variance due to the factor (for a higher-order factor: omega hierarchical); "
+    ordinal = "polychoric" in result.estimator
+    note = (("Ordinal versions, on the latent responses behind the items (alpha from the polychoric correlations). "
+             if ordinal else "") +
+            "Omega: share of the item sum's variance due to the factor (for a higher-order factor: omega hierarchical); "
             "omega total: due to all factors; CR: composite reliability; AVE: average variance extracted; "
             "'sqrt(AVE) > r': the Fornell-Larcker comparison with every other factor; alpha from the sample covariances.")
-    return _table(f"reliability_{group}", "Reliability and validity",
+    return _table(f"reliability_{group}", "Reliability and validity" + (" (ordinal)" if ordinal else ""),
                   [("Factor", "l"), ("Items", "r"), ("Omega", "r"), ("Omega total", "r"), ("CR", "r"), ("AVE", "r"),
                    ("sqrt(AVE) > r", "l"), ("Alpha", "r")], body, note)
 
