@@ -132,8 +132,9 @@ def _add_group_options(p: argparse.ArgumentParser, required: bool) -> None:
 
 
 def _add_test_option(p: argparse.ArgumentParser) -> None:
-    p.add_argument("--test", choices=("normal", "satorra-bentler"), default="normal",
-                   help="'satorra-bentler': scaled chi-square, robust standard errors and robust fit indices for non-normal data")
+    p.add_argument("--test", choices=("normal", "satorra-bentler", "yuan-bentler"), default="normal",
+                   help="'satorra-bentler': scaled chi-square, robust standard errors and robust fit indices for non-normal "
+                        "complete data; 'yuan-bentler': the same with full-information ML (--missing full-information)")
 
 
 def _add_run_options(p: argparse.ArgumentParser) -> None:

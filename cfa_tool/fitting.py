@@ -39,7 +39,7 @@ from cfa_tool.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, Fit
 
 ESTIMATOR = "maximum likelihood"
 INFORMATION_CHOICES = ("expected", "observed")
-TEST_CHOICES = ("normal", "satorra-bentler")
+TEST_CHOICES = ("normal", "satorra-bentler", "yuan-bentler")
 
 
 @dataclass(frozen=True)
@@ -61,8 +61,11 @@ class FitOptions:
             raise OptionError("the number of modification indices to show cannot be negative")
         if self.missing not in MISSING_CHOICES:
             raise OptionError(f"missing must be one of {', '.join(MISSING_CHOICES)}, not '{self.missing}'")
-        if self.missing == "full-information" and self.test != "normal":
-            raise OptionError("the Satorra-Bentler test needs complete rows; it is not available with full-information ML")
+        if self.missing == "full-information" and self.test == "satorra-bentler":
+            raise OptionError("the Satorra-Bentler test needs complete rows; with full-information ML use --test yuan-bentler")
+        if self.test == "yuan-bentler" and self.missing != "full-information":
+            raise OptionError("the Yuan-Bentler test goes with full-information ML (--missing full-information); "
+                              "for complete rows use --test satorra-bentler")
         if self.max_iterations < 1:
             raise OptionError("the iteration limit must be at least 1")
 
@@ -169,6 +172,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     inference = None
     mis: list = []
     robust_wanted = options.test == "satorra-bentler"
+    yuan_bentler = options.test == "yuan-bentler"
     if robust_wanted and any(gm.rows is None for gm in likelihood.groups):
         raise OptionError("the Satorra-Bentler test needs the raw data rows, not only a covariance matrix")
     if est.converged:
@@ -197,6 +201,14 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         if robust_wanted:
             robust = robust_fit(fit.chi_square, fit.df, trace_ug, fit.baseline_chi_square, fit.baseline_df,
                                 baseline_trace(likelihood), n_total, table.n_groups)
+        if yuan_bentler:
+            from cfa_tool.inference.robust_missing import robust_missing
+
+            saturated = [(gm.mean, gm.covariance) for gm in likelihood.groups]
+            cov_theta, c, c_base = robust_missing(likelihood, theta, saturated, fit.df, fit.baseline_df)
+            inference = wald_inference(values, model.J, cov_theta)
+            robust = robust_fit(fit.chi_square, fit.df, c * fit.df, fit.baseline_chi_square, fit.baseline_df,
+                                c_base * fit.baseline_df, n_total, table.n_groups, method="Yuan-Bentler")
         mis = modification_indices(model, theta, likelihood, exogenous_factors(spec))
         for g, m in enumerate(mats):
             prefix = f"group '{table.groups[g]}': " if multi else ""
@@ -269,6 +281,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         model_source=spec.source,
         model_text=spec.text,
         estimator=ESTIMATOR + (" with Satorra-Bentler scaled test and robust standard errors" if robust_wanted else "")
+        + (" with Yuan-Bentler scaled test and robust (Huber-White) standard errors" if yuan_bentler else "")
         + ("" if likelihood.complete_data else " (full information, incomplete rows included)"),
         converged=est.converged,
         iterations=est.iterations,

@@ -133,3 +133,30 @@ def test_satorra_bentler_is_refused_with_fiml(hs_holes):
 
     with pytest.raises(OptionError, match="complete rows"):
         cfa_tool.fit(THREE_FACTORS, hs_holes, missing="full-information", test="satorra-bentler")
+
+
+def test_yuan_bentler_with_complete_rows_gives_the_sandwich_standard_errors(hs_data):
+    # With no missing answers the row scores give Browne's (1984) sandwich exactly, so the robust
+    # standard errors equal the Satorra-Bentler ones (which match semopy's; tests/test_robust.py).
+    sb = cfa_tool.fit(THREE_FACTORS, hs_data, test="satorra-bentler")
+    yb = cfa_tool.fit(THREE_FACTORS, hs_data, test="yuan-bentler", missing="full-information")
+    se = {(r.kind, r.variables): r.se for r in sb.estimates if r.free}
+    for r in yb.estimates:
+        if (r.kind, r.variables) in se:
+            assert r.se == pytest.approx(se[(r.kind, r.variables)], rel=1e-6), r.variables
+    # both scaling factors estimate the same quantity; on these data they differ by about 1%
+    assert yb.robust.scaling_factor == pytest.approx(sb.robust.scaling_factor, rel=0.03)
+    assert yb.robust.method == "Yuan-Bentler"
+
+
+def test_yuan_bentler_scaling_is_near_one_for_normal_data_with_gaps():
+    rng = np.random.default_rng(21)
+    n = 3000
+    f = rng.normal(size=(n, 2))
+    data = pd.DataFrame({f"y{i}": f[:, i // 3] + rng.normal(scale=0.7, size=n) for i in range(6)})
+    values = data.to_numpy().copy()
+    values[rng.random(values.shape) < 0.15] = np.nan
+    data[:] = values
+    result = cfa_tool.fit("factor f: y0, y1, y2\nfactor g: y3, y4, y5\n", data, missing="full-information", test="yuan-bentler")
+    assert result.robust.scaling_factor == pytest.approx(1.0, abs=0.15)
+    assert result.robust.p_value_scaled > 0.001

@@ -22,6 +22,7 @@ import numpy as np
 
 from cfa_tool.assessment.standardized import standardize_entries
 from cfa_tool.estimation.linalg import scaled_solve
+from cfa_tool.estimation.ml import information_diagonal
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable
 
@@ -47,6 +48,7 @@ class ModificationIndex:
 
 
 Candidate = tuple[str, tuple[str, ...], str, int, int]  # kind, variables, matrix, row, col
+CHUNK = 256  # candidates whose derivatives are held in memory at once
 
 
 def candidate_entries(table: ParameterTable, exogenous: tuple[str, ...], group: int = 0) -> list[Candidate]:
@@ -104,11 +106,15 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
         codes = np.array([MATRIX_CODES[c[2]] for c in cands])
         rows = np.array([c[3] for c in cands])
         cols = np.array([c[4] for c in cands])
-        c_sigma, c_mu = entry_derivatives(mats, codes, rows, cols)
-        H_ct = group.information(c_sigma, c_mu, t_sigma, t_mu)
-        h_cc = np.diag(group.information(c_sigma, c_mu))
-        d = group.gradient(c_sigma, c_mu)
-        parts.append((g, cands, codes, rows, cols, mats, weight * d, weight * H_ct, weight * h_cc))
+        H_ct, h_cc, d = [], [], []
+        for start in range(0, len(cands), CHUNK):  # bounded memory for models with thousands of candidates
+            sl = slice(start, start + CHUNK)
+            c_sigma, c_mu = entry_derivatives(mats, codes[sl], rows[sl], cols[sl])
+            H_ct.append(group.information(c_sigma, c_mu, t_sigma, t_mu))
+            h_cc.append(information_diagonal(group, c_sigma, c_mu))
+            d.append(group.gradient(c_sigma, c_mu))
+        parts.append((g, cands, codes, rows, cols, mats, weight * np.concatenate(d), weight * np.vstack(H_ct),
+                      weight * np.concatenate(h_cc)))
     out: list[ModificationIndex] = []
     n = likelihood.n_total
     for g, cands, codes, rows, cols, mats, d, H_ct, h_cc in parts:

@@ -48,6 +48,11 @@ class MissingParts:
     def gradient(self, d_sigma: np.ndarray, d_mu: np.ndarray) -> np.ndarray:
         return d_sigma.reshape(len(d_sigma), -1) @ self.M.ravel() + d_mu @ self.mean_gradient
 
+    def information_diagonal(self, x_sigma: np.ndarray, x_mu: np.ndarray) -> np.ndarray:
+        k, p, _ = x_sigma.shape
+        T = (x_sigma.reshape(k, p * p) @ self.G).reshape(k, p, p)
+        return np.einsum("kib,kbi->k", T, x_sigma) + 2.0 * np.einsum("ki,ij,kj->k", x_mu, self.mean_weight, x_mu)
+
     def information(self, x_sigma, x_mu, y_sigma=None, y_mu=None) -> np.ndarray:
         y_sigma = x_sigma if y_sigma is None else y_sigma
         y_mu = x_mu if y_mu is None else y_mu

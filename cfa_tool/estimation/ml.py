@@ -76,6 +76,18 @@ class NormalParts:
         return out
 
 
+def information_diagonal(parts, x_sigma: np.ndarray, x_mu: np.ndarray) -> np.ndarray:
+    """diag(information(X, X)) without forming the whole matrix (for long candidate lists)."""
+    if isinstance(parts, NormalParts):
+        X = whiten(parts.chol, x_sigma)
+        out = np.einsum("ij,ij->i", X, X)
+        if parts.mean_gradient is not None:
+            W = solve_triangular(parts.chol, x_mu.T, lower=True, check_finite=False)
+            out = out + 2.0 * np.einsum("ij,ij->j", W, W)
+        return out
+    return parts.information_diagonal(x_sigma, x_mu)
+
+
 class NormalLikelihood:
     """The ML discrepancy summed over groups, weighted by group size.
 

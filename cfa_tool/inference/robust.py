@@ -132,7 +132,7 @@ def baseline_trace(likelihood: NormalLikelihood) -> float:
 
 
 def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, base_df: int, base_trace: float,
-               n_obs: int, n_groups: int) -> RobustFit:
+               n_obs: int, n_groups: int, method: str = "Satorra-Bentler") -> RobustFit:
     c = trace_ug / df if df > 0 else float("nan")
     cb = base_trace / base_df
     scaled = chi_square / c if df > 0 else float("nan")
@@ -146,7 +146,7 @@ def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, bas
     low, high = rmsea_interval(scaled, df, n_obs)
     scale = np.sqrt(c * n_groups) if df > 0 else float("nan")
     return RobustFit(
-        method="Satorra-Bentler",
+        method=method,
         scaling_factor=float(c),
         chi_square_scaled=float(scaled),
         df=df,
