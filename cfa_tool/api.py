@@ -142,14 +142,11 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         if group is not None or fit_options.missing != "listwise" or fit_options.test != "normal":
             raise OptionError("ordinal items are fitted with listwise deletion in one group; groups, full-information ML "
                               "and the Satorra-Bentler test are for continuous items")
-        continuous = [x for x in spec.observed_names if x not in ordinal_items]
-        if continuous:
-            raise OptionError(f"mixing continuous and ordinal indicators is not supported; '{continuous[0]}' is not "
-                              f"declared ordinal (declare every indicator ordinal, or none)")
+        continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
         from cfa_tool.data.polychoric import ordinal_moments
         from cfa_tool.fitting import fit_ordinal
 
-        moments = ordinal_moments(frame, spec.observed_names, source)
+        moments = ordinal_moments(frame, spec.observed_names, source, continuous)
         result = fit_ordinal(spec, moments, fit_options, ordinal_estimator)
         return replace(result, warnings=tuple(notes) + result.warnings)
     groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)

@@ -473,15 +473,19 @@ def fit_ordinal(spec: Spec, moments, options: FitOptions = FitOptions(), method:
                                      "derived" if derived else par.origin))
     factors, htmt = reliability(final, table.observed, table.latent, R)
     summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
-                          tuple(float(np.mean(moments.codes[:, k]) + 1) for k in order),
-                          tuple(float(np.std(moments.codes[:, k])) for k in order))
+                          tuple(float(moments.means[k]) for k in order), tuple(float(moments.sds[k]) for k in order))
+    if moments.continuous:
+        warnings.append("continuous items are analysed beside the ordinal ones in the correlation metric (polyserial and "
+                        "Pearson correlations): their unstandardized estimates are in standard-deviation units")
     group = GroupResult(None, summary, fit.chi_square if fit else None, fit.srmr if fit else None,
                         dict(zip(table.observed, (float(v) for v in r_squared(final)))), R, sigma, R - sigma, np.zeros(p),
                         None, None, tuple(factors), tuple(htmt))
     label = "diagonally weighted" if method == "diagonally-weighted" else "unweighted"
     return FitResult(
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
-        estimator=f"{label} least squares on polychoric correlations (ordinal items), robust standard errors",
+        estimator=f"{label} least squares on polychoric correlations (ordinal items"
+                  + (", with polyserial correlations for continuous items" if moments.continuous else "")
+                  + "), robust standard errors",
         converged=opt.converged, iterations=opt.iterations, message=opt.message, n_obs=n, data=summary,
         observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=tuple(estimates),
         modification_indices=(), groups=(group,), warnings=tuple(warnings), mi_threshold=options.mi_threshold,

@@ -105,8 +105,6 @@ def test_ordinal_errors():
     many = data.assign(y1=np.arange(300) % 20)
     with pytest.raises(DataError, match="'y1' has 20 categories"):
         cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\n", many, ordinal="all")
-    with pytest.raises(OptionError, match="mixing continuous and ordinal"):
-        cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\nordinal y1..y4\n", data)
     with pytest.raises(OptionError, match="one group"):
         cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\n", data.assign(site=np.arange(300) % 2), ordinal="all", group="site")
 
@@ -116,3 +114,28 @@ def test_just_identified_ordinal_model_has_nothing_to_test():
     result = cfa_tool.fit("factor f: y1..y3\n", _ordinal(500, 9), ordinal="all")
     assert result.converged and result.fit.df == 0
     assert result.fit.chi_square == pytest.approx(0.0, abs=1e-8)
+
+
+def test_polyserial_correlations_beside_ordinal_items():
+    # a continuous item (any mean and SD) beside ordinal ones: polyserial correlations recover the
+    # population and their asymptotic variances match the Monte Carlo spread
+    def draw(n, seed):
+        z = np.random.default_rng(seed).multivariate_normal(np.zeros(3), R3, size=n)
+        return pd.DataFrame({"x": 2 + 3 * z[:, 0], "y2": np.searchsorted(CUTS[1], z[:, 1]) + 1.0,
+                             "y3": np.searchsorted(CUTS[2], z[:, 2]) + 1.0})
+
+    om = ordinal_moments(draw(20000, 1), ("x", "y2", "y3"), "sim", frozenset({"x"}))
+    lower = np.tril_indices(3, -1)
+    assert np.allclose(om.correlations[lower], R3[lower], atol=0.025)
+    spread = np.var([ordinal_moments(draw(400, 50 + s), ("x", "y2", "y3"), "sim", frozenset({"x"})).correlations[lower]
+                     for s in range(150)], axis=0) * 400
+    assert np.allclose(spread, np.diag(om.gamma), rtol=0.35)
+
+
+def test_mixed_continuous_and_ordinal_model():
+    data = _two_factor_ordinal(3000, 8)
+    z = np.random.default_rng(8).multivariate_normal(np.zeros(2), [[1, 0.4], [0.4, 1]], size=3000)
+    data["y1"] = 0.8 * z[:, 0] * 10 + np.random.default_rng(9).normal(scale=6, size=3000)  # continuous, SD units of 10
+    result = cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\nordinal y2..y8\nscale latent by variance\n", data)
+    assert result.converged and "polyserial" in result.estimator
+    assert any("correlation metric" in w for w in result.warnings)

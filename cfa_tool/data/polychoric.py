@@ -1,4 +1,5 @@
-"""Ordinal items: thresholds, polychoric correlations and their asymptotic covariance.
+"""Ordinal items: thresholds, polychoric (and, beside continuous items, polyserial and
+Pearson) correlations and their asymptotic covariance.
 
 Two-step estimation (Olsson 1979): each item's thresholds from its cumulative
 proportions, tau_c = Phi^-1(P(x <= c)); then each pair's correlation by
@@ -10,7 +11,11 @@ comes from their influence functions, corrected for the estimated thresholds
     IF(rho)_n = I_rr^-1 (s_n - I_rt IF(tau)_n),   IF(tau_c)_n = (1{x_n <= c} - F_c) / phi(tau_c)
 
 with s_n the case's score for rho and I the expected information of the pair's
-likelihood; Gamma = mean of IF IF'.
+likelihood; Gamma = mean of IF IF'.  A continuous item next to an ordinal one
+gets a polyserial correlation (two-step, Olsson, Drasgow & Dorans 1982), whose
+influence function is corrected in the same way for the thresholds and for the
+continuous item's mean and standard deviation; two continuous items get the
+Pearson correlation, IF = z_i z_j - r (z_i^2 + z_j^2) / 2.
 """
 
 from __future__ import annotations
@@ -40,6 +45,9 @@ class OrdinalMoments:
     correlations: np.ndarray
     gamma: np.ndarray  # asymptotic covariance of sqrt(N)(r - rho), pairs in np.tril_indices(p, -1) order
     codes: np.ndarray = field(repr=False)
+    means: np.ndarray = field(repr=False, default=None)  # of the items' scores as given
+    sds: np.ndarray = field(repr=False, default=None)
+    continuous: frozenset = frozenset()
 
     @property
     def pairs(self) -> tuple[np.ndarray, np.ndarray]:
@@ -85,16 +93,74 @@ def polychoric_pair(table: np.ndarray, ti: np.ndarray, tj: np.ndarray) -> float:
     return float(result.x)
 
 
-def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> OrdinalMoments:
+def _polyserial_scores(z: np.ndarray, codes: np.ndarray, tau: np.ndarray, rho: float) -> np.ndarray:
+    """d log L_n / d rho for each case, L_n = Phi((t_up - rho z) / s) - Phi((t_low - rho z) / s), s = sqrt(1 - rho^2)."""
+    t = _extended(tau)
+    s = np.sqrt(1.0 - rho**2)
+    up, low = t[codes + 1], t[codes]
+    a, b = (up - rho * z) / s, (low - rho * z) / s
+    prob = np.clip(stats.norm.cdf(a) - stats.norm.cdf(b), 1e-300, None)
+
+    def d(tt, arg):  # d/d rho of (tt - rho z) / s, zero for infinite limits
+        out = (-z * s + (tt - rho * z) * rho / s) / s**2
+        return np.where(np.isfinite(tt), out, 0.0)
+
+    return (stats.norm.pdf(a) * d(up, a) - stats.norm.pdf(b) * d(low, b)) / prob
+
+
+def polyserial_pair(z: np.ndarray, codes: np.ndarray, tau: np.ndarray) -> float:
+    t = _extended(tau)
+
+    def negative(rho):
+        s = np.sqrt(1.0 - rho**2)
+        prob = stats.norm.cdf((t[codes + 1] - rho * z) / s) - stats.norm.cdf((t[codes] - rho * z) / s)
+        return -float(np.sum(np.log(np.clip(prob, 1e-300, None))))
+
+    return float(optimize.minimize_scalar(negative, bounds=(-0.999, 0.999), method="bounded", options={"xatol": 1e-10}).x)
+
+
+def _polyserial_influence(x: np.ndarray, codes: np.ndarray, tau: np.ndarray, tau_if: np.ndarray, rho: float) -> np.ndarray:
+    """IF of a polyserial correlation, corrected for the thresholds and the continuous item's mean and SD;
+    the expected derivatives of the score are averaged over the sample by central differences."""
+    mean, sd = x.mean(), x.std()
+    z = (x - mean) / sd
+    score = _polyserial_scores(z, codes, tau, rho)
+    h = 1e-5
+    info_rr = -np.mean(_polyserial_scores(z, codes, tau, rho + h) - _polyserial_scores(z, codes, tau, rho - h)) / (2 * h)
+    correction = np.zeros_like(x)
+    for c in range(len(tau)):
+        up, down = tau.copy(), tau.copy()
+        up[c] += h
+        down[c] -= h
+        info = -np.mean(_polyserial_scores(z, codes, up, rho) - _polyserial_scores(z, codes, down, rho)) / (2 * h)
+        correction += info * tau_if[:, c]
+    info_mu = -np.mean(_polyserial_scores((x - mean - h) / sd, codes, tau, rho)
+                       - _polyserial_scores((x - mean + h) / sd, codes, tau, rho)) / (2 * h)
+    info_sd = -np.mean(_polyserial_scores((x - mean) / (sd + h), codes, tau, rho)
+                       - _polyserial_scores((x - mean) / (sd - h), codes, tau, rho)) / (2 * h)
+    correction += info_mu * (x - mean) + info_sd * ((x - mean) ** 2 - sd**2) / (2 * sd)
+    return (score - correction) / info_rr
+
+
+def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
+                    continuous: frozenset[str] = frozenset()) -> OrdinalMoments:
+    """Thresholds and correlations of ordinal items (and of any ``continuous`` items beside them)."""
     values = numeric_columns(frame, names, source)
     complete = ~np.isnan(values).any(axis=1)
     data = values[complete]
     n, p = data.shape
     if n <= p:
-        raise DataError(f"{source}: {n} complete rows for {p} ordinal items; more rows are needed")
+        raise DataError(f"{source}: {n} complete rows for {p} items; more rows are needed")
     codes = np.zeros_like(data, dtype=int)
     categories, thresholds, threshold_if = [], [], []
     for j, name in enumerate(names):
+        if name in continuous:
+            if data[:, j].std() == 0:
+                raise DataError(f"{source}: column '{name}' has the same value in every row used")
+            categories.append(())
+            thresholds.append(np.zeros(0))
+            threshold_if.append(np.zeros((n, 0)))
+            continue
         levels = np.unique(data[:, j])
         if len(levels) < 2:
             raise DataError(f"{source}: ordinal item '{name}' has a single category ({levels[0]:g}); it needs at least two")
@@ -112,7 +178,20 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str) ->
     rows_i, cols_j = np.tril_indices(p, -1)
     R = np.eye(p)
     influence = np.zeros((n, len(rows_i)))
+    z_all = (data - data.mean(axis=0)) / np.where(data.std(axis=0) > 0, data.std(axis=0), 1.0)
     for k, (i, j) in enumerate(zip(rows_i, cols_j)):
+        ci, cj = names[i] in continuous, names[j] in continuous
+        if ci and cj:
+            r = float(np.mean(z_all[:, i] * z_all[:, j]))
+            R[i, j] = R[j, i] = r
+            influence[:, k] = z_all[:, i] * z_all[:, j] - r * (z_all[:, i] ** 2 + z_all[:, j] ** 2) / 2
+            continue
+        if ci or cj:
+            c, o = (i, j) if ci else (j, i)
+            rho = polyserial_pair(z_all[:, c], codes[:, o], thresholds[o])
+            R[i, j] = R[j, i] = rho
+            influence[:, k] = _polyserial_influence(data[:, c], codes[:, o], thresholds[o], threshold_if[o], rho)
+            continue
         table = np.zeros((len(categories[i]), len(categories[j])))
         np.add.at(table, (codes[:, i], codes[:, j]), 1.0)
         rho = polychoric_pair(table, thresholds[i], thresholds[j])
@@ -132,4 +211,4 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str) ->
         raise DataError(f"{source}: the polychoric correlation matrix is not positive definite; "
                         f"some items may be near duplicates or some categories nearly empty")
     return OrdinalMoments(tuple(names), n, len(frame), int((~complete).sum()), source, tuple(categories), tuple(thresholds),
-                          R, gamma, codes)
+                          R, gamma, codes, data.mean(axis=0), data.std(axis=0), frozenset(continuous))
