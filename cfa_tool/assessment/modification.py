@@ -106,6 +106,11 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
         codes = np.array([MATRIX_CODES[c[2]] for c in cands])
         rows = np.array([c[3] for c in cands])
         cols = np.array([c[4] for c in cands])
+        fast = _rank_two_blocks(group, mats, t_sigma, codes, rows, cols) if not likelihood.means else None
+        if fast is not None:
+            d_all, H_all, h_all = fast
+            parts.append((g, cands, codes, rows, cols, mats, weight * d_all, weight * H_all, weight * h_all))
+            continue
         H_ct, h_cc, d = [], [], []
         for start in range(0, len(cands), CHUNK):  # bounded memory for models with thousands of candidates
             sl = slice(start, start + CHUNK)
@@ -131,6 +136,51 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
         )
     out.sort(key=lambda r: -r.index)
     return out
+
+
+def _rank_two_blocks(parts, mats, t_sigma: np.ndarray, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray):
+    """Gradient, cross-information and own information of candidates without forming their derivatives.
+
+    Every candidate here (a cross-loading L_ij, a residual covariance T_ij, a factor covariance
+    P_ij) changes Sigma by a b' + b a' for vectors a, b (e_i and c_j; e_i and e_j; g_i and g_j),
+    so with S = Sigma^-1 and K_t = S D_t S:  d = 2 a'M b,  H_ct = 2 a'K_t b,
+    h = 2 ((a'S a)(b'S b) + (a'S b)^2).  Only for complete data without a mean structure
+    (None otherwise, and for other candidate kinds)."""
+    if not hasattr(parts, "sigma_inv") or np.any((codes == 1) | (codes > 3)):
+        return None
+    S, M = parts.sigma_inv, parts.M
+    G = mats.L @ mats.A
+    C = mats.A @ mats.P @ G.T  # (m, p): c_j = C[j]
+    K = S @ t_sigma @ S  # (q, p, p)
+    E = len(codes)
+    q = len(t_sigma)
+    d = np.empty(E)
+    H = np.empty((E, q))
+    h = np.empty(E)
+    sel = codes == 0  # L_ij: a = e_i, b = c_j
+    if sel.any():
+        i, j = rows[sel], cols[sel]
+        KC = K @ C.T  # (q, p, m)
+        H[sel] = 2.0 * KC[:, i, j].T
+        SC = C @ S  # (m, p)
+        d[sel] = 2.0 * (M @ C.T)[i, j]
+        h[sel] = 2.0 * (S[i, i] * np.einsum("jp,jp->j", SC, C)[j] + SC[j, i] ** 2)
+    sel = codes == 3  # T_ij: a = e_i, b = e_j
+    if sel.any():
+        i, j = rows[sel], cols[sel]
+        H[sel] = 2.0 * K[:, i, j].T
+        d[sel] = 2.0 * M[i, j]
+        h[sel] = 2.0 * (S[i, i] * S[j, j] + S[i, j] ** 2)
+    sel = codes == 2  # P_ij: a = g_i, b = g_j
+    if sel.any():
+        i, j = rows[sel], cols[sel]
+        GKG = G.T @ K @ G  # (q, m, m)
+        H[sel] = 2.0 * GKG[:, i, j].T
+        SG = S @ G
+        GSG = G.T @ SG
+        d[sel] = 2.0 * (G.T @ M @ G)[i, j]
+        h[sel] = 2.0 * (GSG[i, i] * GSG[j, j] + GSG[i, j] ** 2)
+    return d, H, h
 
 
 def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood,
