@@ -14,7 +14,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats
+from cfa_tool import distributions as dist
 
 
 @dataclass(frozen=True)
@@ -45,7 +45,7 @@ def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarra
     d_model = np.einsum("ij,ij->i", dev @ np.linalg.inv(sigma), dev)
     share = np.linalg.slogdet(sigma)[1] - np.linalg.slogdet(S)[1] + d_model - d_sample
     numbers = np.arange(1, n + 1) if row_numbers is None else row_numbers
-    p_values = stats.chi2.sf(d_sample, p)
+    p_values = dist.chi2_sf(d_sample, p)
 
     def pick(order) -> list[CaseDiagnostic]:
         return [CaseDiagnostic(int(numbers[i]), float(d_sample[i]), float(p_values[i]), float(share[i])) for i in order[:top]]

@@ -21,7 +21,7 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass
 
 import numpy as np
-from scipy import stats
+from cfa_tool import distributions as dist
 from scipy.optimize import brentq
 
 
@@ -53,12 +53,12 @@ class FitIndices:
 def chi_square_p(chi_square: float, df: int) -> float:
     if df <= 0:
         return float("nan")
-    return float(stats.chi2.sf(chi_square, df))
+    return float(dist.chi2_sf(chi_square, df))
 
 
 def noncentrality_bound(chi_square: float, df: int, probability: float) -> float:
     """lambda such that P(chi2_df(lambda) <= chi_square) = probability (0 if none)."""
-    f = lambda lam: stats.ncx2.cdf(chi_square, df, lam) - probability if lam > 0 else stats.chi2.cdf(chi_square, df) - probability
+    f = lambda lam: dist.ncx2_cdf(chi_square, df, lam) - probability if lam > 0 else dist.chi2_cdf(chi_square, df) - probability
     if f(0.0) < 0:
         return 0.0
     hi = max(1.0, chi_square)
@@ -83,7 +83,7 @@ def rmsea_close_fit_p(chi_square: float, df: int, n_obs: int, close: float = 0.0
     if df <= 0:
         return float("nan")
     lam0 = close**2 * df * n_obs
-    return float(stats.ncx2.sf(chi_square, df, lam0))
+    return float(dist.ncx2_sf(chi_square, df, lam0))
 
 
 def rmsea_value(chi_square: float, df: int, n_obs: int) -> float:

@@ -14,7 +14,7 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass
 
 import numpy as np
-from scipy import stats
+from cfa_tool import distributions as dist
 
 
 @dataclass(frozen=True)
@@ -47,4 +47,4 @@ def mardia(rows: np.ndarray) -> Normality:
     chi = n * b1 / 6.0
     expected = p * (p + 2.0)
     z = (b2 - expected) / np.sqrt(8.0 * p * (p + 2.0) / n)
-    return Normality(b1, chi, df, float(stats.chi2.sf(chi, df)), b2, expected, float(z), float(2 * stats.norm.sf(abs(z))))
+    return Normality(b1, chi, df, float(dist.chi2_sf(chi, df)), b2, expected, float(z), float(2 * dist.norm_sf(abs(z))))

@@ -24,7 +24,9 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
-from scipy import optimize, stats
+from scipy import optimize
+
+from cfa_tool import distributions as dist
 
 from cfa_tool.data.moments import numeric_columns
 from cfa_tool.errors import DataError
@@ -78,8 +80,8 @@ def _threshold_derivative(ti, tj, rho) -> np.ndarray:
     s = np.sqrt(1.0 - rho**2)
     out = np.zeros((len(ti), len(ti) + 1, len(tj) + 1))
     for c, t in enumerate(ti):
-        cond = stats.norm.cdf((b - rho * t) / s)
-        strip = stats.norm.pdf(t) * (cond[1:] - cond[:-1])  # d/dt of P(x <= t, b_k < y <= b_k+1)
+        cond = dist.norm_cdf((b - rho * t) / s)
+        strip = dist.norm_pdf(t) * (cond[1:] - cond[:-1])  # d/dt of P(x <= t, b_k < y <= b_k+1)
         out[c, c, :] += strip  # cell a = c has upper limit tau_c
         out[c, c + 1, :] -= strip  # cell a = c + 1 has lower limit tau_c
     return out
@@ -99,13 +101,13 @@ def _polyserial_scores(z: np.ndarray, codes: np.ndarray, tau: np.ndarray, rho: f
     s = np.sqrt(1.0 - rho**2)
     up, low = t[codes + 1], t[codes]
     a, b = (up - rho * z) / s, (low - rho * z) / s
-    prob = np.clip(stats.norm.cdf(a) - stats.norm.cdf(b), 1e-300, None)
+    prob = np.clip(dist.norm_cdf(a) - dist.norm_cdf(b), 1e-300, None)
 
     def d(tt, arg):  # d/d rho of (tt - rho z) / s, zero for infinite limits
         out = (-z * s + (tt - rho * z) * rho / s) / s**2
         return np.where(np.isfinite(tt), out, 0.0)
 
-    return (stats.norm.pdf(a) * d(up, a) - stats.norm.pdf(b) * d(low, b)) / prob
+    return (dist.norm_pdf(a) * d(up, a) - dist.norm_pdf(b) * d(low, b)) / prob
 
 
 def polyserial_pair(z: np.ndarray, codes: np.ndarray, tau: np.ndarray) -> float:
@@ -113,7 +115,7 @@ def polyserial_pair(z: np.ndarray, codes: np.ndarray, tau: np.ndarray) -> float:
 
     def negative(rho):
         s = np.sqrt(1.0 - rho**2)
-        prob = stats.norm.cdf((t[codes + 1] - rho * z) / s) - stats.norm.cdf((t[codes] - rho * z) / s)
+        prob = dist.norm_cdf((t[codes + 1] - rho * z) / s) - dist.norm_cdf((t[codes] - rho * z) / s)
         return -float(np.sum(np.log(np.clip(prob, 1e-300, None))))
 
     return float(optimize.minimize_scalar(negative, bounds=(-0.999, 0.999), method="bounded", options={"xatol": 1e-10}).x)
@@ -170,11 +172,11 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         codes[:, j] = np.searchsorted(levels, data[:, j])
         counts = np.bincount(codes[:, j], minlength=len(levels))
         cumulative = np.cumsum(counts)[:-1] / n
-        tau = stats.norm.ppf(cumulative)
+        tau = dist.norm_ppf(cumulative)
         categories.append(tuple(float(v) for v in levels))
         thresholds.append(tau)
         below = (codes[:, j][:, None] <= np.arange(len(tau))[None, :]).astype(float)
-        threshold_if.append((below - cumulative[None, :]) / stats.norm.pdf(tau)[None, :])
+        threshold_if.append((below - cumulative[None, :]) / dist.norm_pdf(tau)[None, :])
     rows_i, cols_j = np.tril_indices(p, -1)
     R = np.eye(p)
     influence = np.zeros((n, len(rows_i)))

@@ -16,7 +16,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats
+from cfa_tool import distributions as dist
 
 from cfa_tool.estimation.linalg import scaled_inverse
 from cfa_tool.estimation.ml import Evaluation
@@ -78,8 +78,8 @@ def adjusted_test(statistic: float, df: int, D: np.ndarray | None, weights: np.n
     shifted = shift_scale * statistic + (df - shift_scale * a1)
     d_star = a1**2 / a2
     mv = statistic * d_star / a1
-    return AdjustedTest(statistic, df, float(shifted), float(stats.chi2.sf(max(shifted, 0.0), df)), float(mv), float(d_star),
-                        float(stats.chi2.sf(mv, d_star)), a1 / df)
+    return AdjustedTest(statistic, df, float(shifted), float(dist.chi2_sf(max(shifted, 0.0), df)), float(mv), float(d_star),
+                        float(dist.chi2_sf(mv, d_star)), a1 / df)
 
 
 def robust_covariance(D: np.ndarray, weights: np.ndarray, gamma: np.ndarray, n_obs: int) -> np.ndarray:

@@ -21,7 +21,7 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass
 
 import numpy as np
-from scipy import stats
+from cfa_tool import distributions as dist
 
 from cfa_tool.estimation.linalg import scaled_inverse
 from cfa_tool.estimation.ml import NormalLikelihood
@@ -150,7 +150,7 @@ def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, bas
         scaling_factor=float(c),
         chi_square_scaled=float(scaled),
         df=df,
-        p_value_scaled=float(stats.chi2.sf(scaled, df)) if df > 0 else float("nan"),
+        p_value_scaled=float(dist.chi2_sf(scaled, df)) if df > 0 else float("nan"),
         baseline_scaling_factor=float(cb),
         baseline_chi_square_scaled=float(base_chi / cb),
         cfi_robust=float(cfi),

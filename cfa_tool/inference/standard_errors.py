@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from typing import Callable
 
 import numpy as np
-from scipy import stats
+from cfa_tool import distributions as dist
 
 from cfa_tool.estimation.linalg import scaled_inverse
 
@@ -57,6 +57,6 @@ def wald_inference(values: np.ndarray, J: np.ndarray, cov_theta: np.ndarray, lev
     se = np.where(free, np.sqrt(np.clip(var, 0.0, None)), np.nan)
     with np.errstate(divide="ignore", invalid="ignore"):
         z = np.where(free & (se > 0), values / se, np.nan)
-    p = np.where(np.isfinite(z), 2.0 * stats.norm.sf(np.abs(z)), np.nan)
-    crit = stats.norm.ppf(0.5 + level / 2.0)
+    p = np.where(np.isfinite(z), 2.0 * dist.norm_sf(np.abs(z)), np.nan)
+    crit = dist.norm_ppf(0.5 + level / 2.0)
     return Inference(se, z, p, values - crit * se, values + crit * se)

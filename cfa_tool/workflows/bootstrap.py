@@ -15,7 +15,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import linalg, stats
+from scipy import linalg
+
+from cfa_tool import distributions as dist
 
 from cfa_tool.errors import OptionError
 from cfa_tool.fitting import moments_from_rows, replicate_fit
@@ -138,13 +140,13 @@ def _bca(draws: np.ndarray, point: float, jack: np.ndarray, level: float = 0.95)
     share = np.mean(draws < point) + 0.5 * np.mean(draws == point)
     if share <= 0 or share >= 1:
         return (float("nan"), float("nan"))
-    z0 = stats.norm.ppf(share)
+    z0 = dist.norm_ppf(share)
     d = jack.mean() - jack
     denom = 6.0 * (np.sum(d**2) ** 1.5)
     a = float(np.sum(d**3) / denom) if denom > 0 else 0.0
     out = []
     for q in ((1 - level) / 2, (1 + level) / 2):
-        z = stats.norm.ppf(q)
-        adjusted = stats.norm.cdf(z0 + (z0 + z) / (1 - a * (z0 + z)))
+        z = dist.norm_ppf(q)
+        adjusted = dist.norm_cdf(z0 + (z0 + z) / (1 - a * (z0 + z)))
         out.append(float(np.percentile(draws, 100 * adjusted)))
     return out[0], out[1]

@@ -11,7 +11,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats
+from cfa_tool import distributions as dist
 
 from cfa_tool.errors import OptionError
 from cfa_tool.fitting import moments_from_rows, replicate_fit
@@ -77,13 +77,13 @@ def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int
             entry_of.setdefault(par.terms[0][0], e)
     thetas = np.array([t for t, _ in ok])
     ses = np.array([se[[entry_of[k] for k in range(table.n_free)]] for _, se in ok])
-    crit = stats.norm.ppf(1 - alpha / 2)
+    crit = dist.norm_ppf(1 - alpha / 2)
     rows = []
     for k in range(table.n_free):
         truth = population.theta[k]
         est, se = thetas[:, k], ses[:, k]
         z = np.abs(est / se)
-        covered = np.abs(est - truth) <= stats.norm.ppf(0.975) * se
+        covered = np.abs(est - truth) <= dist.norm_ppf(0.975) * se
         rows.append(ParameterPower(
             table.free_labels[k], float(truth), float(est.mean()),
             float((est.mean() - truth) / truth) if truth != 0 else float("nan"),

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from scipy import stats
+from cfa_tool import distributions as dist
 
 from cfa_tool.data.moments import SampleMoments
 from cfa_tool.fitting import Estimation, FitOptions, estimate
@@ -39,7 +39,7 @@ def difference_test(restricted: FitResult, general: FitResult, restricted_name: 
     r, g = restricted.fit, general.fit
     diff = r.chi_square - g.chi_square
     ddf = r.df - g.df
-    p = float(stats.chi2.sf(max(diff, 0.0), ddf)) if ddf > 0 else float("nan")
+    p = float(dist.chi2_sf(max(diff, 0.0), ddf)) if ddf > 0 else float("nan")
     return DifferenceTest(restricted_name, general_name, diff, ddf, p, "likelihood ratio", r.cfi - g.cfi, r.rmsea - g.rmsea)
 
 
@@ -63,7 +63,7 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
             continue
         cd = (r.df * rr.scaling_factor - g.df * c1) / ddf
         diff = (r.chi_square - g.chi_square) / cd if cd > 0 else float("nan")
-        p = float(stats.chi2.sf(max(diff, 0.0), ddf)) if cd > 0 else float("nan")
+        p = float(dist.chi2_sf(max(diff, 0.0), ddf)) if cd > 0 else float("nan")
         out.append(DifferenceTest(restricted_name, general_name, diff, ddf, p, method, delta_cfi, delta_rmsea))
     return out
 

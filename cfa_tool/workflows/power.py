@@ -13,7 +13,7 @@ from __future__ import annotations
 
 from dataclasses import asdict, dataclass
 
-from scipy import stats
+from cfa_tool import distributions as dist
 
 from cfa_tool.errors import OptionError
 
@@ -40,20 +40,15 @@ class PowerResult:
         return asdict(self)
 
 
-def _chi(df: int, lam: float):
-    return stats.chi2(df) if lam == 0 else stats.ncx2(df, lam)
-
-
 def rmsea_power(df: int, n_obs: int, rmsea_null: float, rmsea_alt: float, alpha: float = 0.05) -> float:
     if df < 1 or n_obs < 2:
         raise OptionError("power needs at least 1 degree of freedom and 2 observations")
     n = n_obs - 1
-    null = _chi(df, n * df * rmsea_null**2)
-    alt = _chi(df, n * df * rmsea_alt**2)
+    lam0, lama = n * df * rmsea_null**2, n * df * rmsea_alt**2
     if rmsea_alt > rmsea_null:
-        return float(alt.sf(null.ppf(1 - alpha)))
+        return float(dist.ncx2_sf(dist.ncx2_ppf(1 - alpha, df, lam0), df, lama))
     if rmsea_alt < rmsea_null:
-        return float(alt.cdf(null.ppf(alpha)))
+        return float(dist.ncx2_cdf(dist.ncx2_ppf(alpha, df, lam0), df, lama))
     raise OptionError("the null and alternative RMSEA must differ")
 
 

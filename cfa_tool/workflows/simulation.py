@@ -13,7 +13,7 @@ from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
-from scipy import stats
+from cfa_tool import distributions as dist
 
 from cfa_tool.errors import OptionError
 from cfa_tool.language.spec import Spec
@@ -75,7 +75,7 @@ def simulate_rows(sigma: np.ndarray, n: int, rng: np.random.Generator, means: np
 def to_ordinal(rows: np.ndarray, sigma: np.ndarray, categories: int) -> np.ndarray:
     """Cut each standardized variable at the normal quantiles that give equally likely categories 1..k."""
     sd = np.sqrt(np.diag(sigma))
-    cuts = stats.norm.ppf(np.arange(1, categories) / categories)
+    cuts = dist.norm_ppf(np.arange(1, categories) / categories)
     return (np.searchsorted(cuts, rows / sd, side="right") + 1).astype(float)
 
 

@@ -1,0 +1,48 @@
+"""The few distribution functions the tool needs, from scipy.special (importing
+scipy.stats costs more than half a second at every start of the command)."""
+
+from __future__ import annotations
+
+import numpy as np
+from scipy import special
+
+
+def chi2_sf(x, df):
+    return special.chdtrc(df, np.maximum(x, 0.0))
+
+
+def chi2_cdf(x, df):
+    return special.chdtr(df, np.maximum(x, 0.0))
+
+
+def chi2_ppf(q, df):
+    return special.chdtri(df, 1.0 - np.asarray(q, dtype=float))
+
+
+def ncx2_cdf(x, df, nc):
+    return special.chndtr(np.maximum(x, 0.0), df, nc) if np.all(np.asarray(nc) > 0) else chi2_cdf(x, df)
+
+
+def ncx2_sf(x, df, nc):
+    return 1.0 - ncx2_cdf(x, df, nc)
+
+
+def ncx2_ppf(q, df, nc):
+    return special.chndtrix(q, df, nc) if nc > 0 else chi2_ppf(q, df)
+
+
+def norm_cdf(x):
+    return special.ndtr(x)
+
+
+def norm_sf(x):
+    return special.ndtr(-np.asarray(x, dtype=float))
+
+
+def norm_ppf(q):
+    return special.ndtri(q)
+
+
+def norm_pdf(x):
+    x = np.asarray(x, dtype=float)
+    return np.exp(-0.5 * x * x) / np.sqrt(2.0 * np.pi)
