@@ -66,12 +66,8 @@ def build_parser() -> argparse.ArgumentParser:
     rep.add_argument("--seed", type=int, default=1, help="seed of the random split (default 1)")
     _add_json_option(rep)
 
-    boot = sub.add_parser("bootstrap", help="bootstrap intervals and the Bollen-Stine p-value of a fit")
-    boot.add_argument("model", metavar="MODEL", help="model file")
-    boot.add_argument("--data", required=True, metavar="FILE", help="data file")
-    _add_data_options(boot)
-    boot.add_argument("--replications", type=int, default=1000, help="number of resamples (default 1000)")
-    _add_run_options(boot)
+    _add_resampling_command(sub, "bootstrap", "bootstrap intervals and the Bollen-Stine p-value of a fit", 1000,
+                            "number of resamples")
 
     power = sub.add_parser("power", help="power and sample size of RMSEA tests of fit")
     power.add_argument("model", metavar="MODEL", nargs="?", help="model file (gives the degrees of freedom)")
@@ -97,12 +93,8 @@ def build_parser() -> argparse.ArgumentParser:
     sim.add_argument("--categories", type=int, help="make ordinal items with this many categories")
     sim.add_argument("--missing", type=float, default=0.0, help="share of answers removed completely at random")
 
-    cut = sub.add_parser("cutoffs", help="fit-index cutoffs simulated for this model and sample size")
-    cut.add_argument("model", metavar="MODEL", help="model file")
-    cut.add_argument("--data", required=True, metavar="FILE", help="data file")
-    _add_data_options(cut)
-    cut.add_argument("--replications", type=int, default=200, help="samples per population (default 200)")
-    _add_run_options(cut)
+    _add_resampling_command(sub, "cutoffs", "fit-index cutoffs simulated for this model and sample size", 200,
+                            "samples per population")
 
     demo = sub.add_parser("demo", help="fit the bundled rider-experience demo and print the report")
     _add_output_options(demo)
@@ -135,6 +127,15 @@ def _add_test_option(p: argparse.ArgumentParser) -> None:
     p.add_argument("--test", choices=("normal", "satorra-bentler", "yuan-bentler"), default="normal",
                    help="'satorra-bentler': scaled chi-square, robust standard errors and robust fit indices for non-normal "
                         "complete data; 'yuan-bentler': the same with full-information ML (--missing full-information)")
+
+
+def _add_resampling_command(sub, name: str, help_text: str, replications: int, what: str) -> None:
+    p = sub.add_parser(name, help=help_text)
+    p.add_argument("model", metavar="MODEL", help="model file")
+    p.add_argument("--data", required=True, metavar="FILE", help="data file")
+    _add_data_options(p)
+    p.add_argument("--replications", type=int, default=replications, help=f"{what} (default {replications})")
+    _add_run_options(p)
 
 
 def _add_run_options(p: argparse.ArgumentParser) -> None:

@@ -162,3 +162,10 @@ def test_report_in_a_real_browser(tmp_path, hostile_result):
     assert "<script>alert(1)</script>" not in dom and "<img src=\"x\"" not in dom
     assert "&lt;script&gt;alert(1)&lt;/script&gt;" in dom and "&lt;img src=x onerror=alert(1)&gt;" in dom
     assert _count(r"<ellipse\b", dom) == 2 and _count(r"<rect\b", dom) == 6
+
+
+def test_methods_paragraph_names_the_estimator_that_was_used():
+    ordinal = methods_paragraph(cfa_tool.fit(MODEL, DATA, ordinal="all"))
+    assert "polychoric" in ordinal and "maximum likelihood" not in ordinal and "scale-shifted" in ordinal
+    fiml = methods_paragraph(cfa_tool.fit(MODEL, DATA, missing="full-information", test="yuan-bentler"))
+    assert "full-information maximum likelihood" in fiml and "Yuan-Bentler" in fiml and "excluded listwise" not in fiml

@@ -16,6 +16,26 @@ def _list(words: list[str]) -> str:
     return ", ".join(words[:-1]) + ", and " + words[-1]
 
 
+def _estimator_phrase(result) -> str:
+    text = result.estimator
+    if "polychoric" in text:
+        kind = "diagonally weighted" if text.startswith("diagonally") else "unweighted"
+        extra = " and polyserial" if "polyserial" in text else ""
+        return f"{kind} least squares on polychoric{extra} correlations of the ordinal items, with robust standard errors"
+    if "full information" in text:
+        base = "full-information maximum likelihood, which uses every available answer"
+        return base + (" (Yuan-Bentler scaled test, robust standard errors)" if result.robust is not None else "")
+    if result.robust is not None:
+        return "maximum likelihood with the Satorra-Bentler scaled test and robust standard errors"
+    return "maximum likelihood"
+
+
+def _test_phrase(method: str) -> str:
+    if method.startswith("scale-shifted"):
+        return "mean-and-variance adjusted (scale-shifted) chi-square test"
+    return f"{method} scaled chi-square test"
+
+
 def methods_paragraph(result) -> str:
     if not result.converged or result.fit is None:
         return "The model did not converge, so no results are reported."
@@ -33,10 +53,7 @@ def methods_paragraph(result) -> str:
     loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed]
     d = result.data
     parts = []
-    estimator = "robust maximum likelihood (Satorra-Bentler scaled test, robust standard errors)" if result.robust else \
-        "maximum likelihood"
-    if "full information" in result.estimator:
-        estimator = "full-information maximum likelihood, which uses every available answer"
+    estimator = _estimator_phrase(result)
     sample = f"N = {result.n_obs}"
     if d.rows_dropped and "full information" not in result.estimator:
         sample += f"; {d.rows_dropped} of {d.rows_read} rows with missing answers were excluded listwise"
@@ -50,7 +67,7 @@ def methods_paragraph(result) -> str:
         r = result.robust
         rl, rh = r.rmsea_robust_ci90
         parts.append(
-            f"The scaled chi-square test gave chi-square({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
+            f"The {_test_phrase(r.method)} gave chi-square({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
             f"(scaling factor {r.scaling_factor:.3f}); robust CFI = {unit(r.cfi_robust)}, robust TLI = {unit(r.tli_robust)}, "
             f"robust RMSEA = {unit(r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], SRMR = {unit(f.srmr)}."
         )

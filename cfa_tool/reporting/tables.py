@@ -66,7 +66,7 @@ def fit_table(result) -> ReportTable:
         rlow, rhigh = r.rmsea_robust_ci90
         rows += [
             [f"Scaled chi-square ({r.method})", f"{r.chi_square_scaled:.3f} on {r.df} df, p {p_phrase(r.p_value_scaled)}",
-             "use this test with non-normal data"],
+             "the test to read for these data"],
             ["  scaling factor", num(r.scaling_factor), "1 under normality"],
             ["Robust CFI / TLI", f"{unit(r.cfi_robust)} / {unit(r.tli_robust)}", ">= .95"],
             ["Robust RMSEA [90% interval]", f"{unit(r.rmsea_robust)} [{unit(rlow)}, {unit(rhigh)}]", "<= .06"],
