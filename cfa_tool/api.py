@@ -47,6 +47,9 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             frame = frame.mask(frame.isin(list(missing_codes)))
         return LoadedData(frame, "<data frame>")
     if isinstance(data, (str, Path)):
+        if Path(data).suffix.lower() == SUMMARY_SUFFIX:
+            raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
+                              f"summary statistics work with fit, check and compare")
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes))
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 

@@ -143,7 +143,7 @@ def fit_indices(groups: list[tuple[np.ndarray, np.ndarray, int, np.ndarray | Non
     n_obs = sum(g[2] for g in groups)
     moments = G * (p * (p + 1) // 2 + (p if mean_structure else 0))
     df = moments - n_free
-    chi = float(n_obs * discrepancy)
+    chi = max(float(n_obs * discrepancy), 0.0)  # rounding can leave a just-identified model a hair below zero
     base_chi = 0.0
     base_df = 0
     loglik = 0.0

@@ -11,8 +11,9 @@ from cfa_tool.reporting.terminal import GUIDE_NOTE, HIGH_STAKES_NOTE, _table
 
 def _fit_cells(fit) -> list[str]:
     low, high = fit.rmsea_ci90
+    rmsea = f"{unit(fit.rmsea)} [{unit(low)}, {unit(high)}]" if fit.df > 0 else ""
     return [f"{fit.chi_square:.3f}", str(fit.df), p_value(fit.p_value), unit(fit.cfi), unit(fit.tli),
-            f"{unit(fit.rmsea)} [{unit(low)}, {unit(high)}]", unit(fit.srmr), num(fit.aic, 1), num(fit.bic, 1)]
+            rmsea, unit(fit.srmr), num(fit.aic, 1), num(fit.bic, 1)]
 
 
 _FIT_COLUMNS = [("Chi-square", "right"), ("df", "right"), ("p", "right"), ("CFI", "right"), ("TLI", "right"),

@@ -10,6 +10,7 @@ import pandas as pd
 from cfa_tool.api import load_frame, load_spec, make_options, moments_for
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.matching import check_columns
+from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file
 from cfa_tool.errors import OptionError
 from cfa_tool.fitting import fit_moments
 from cfa_tool.language.spec import Spec
@@ -59,6 +60,9 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         raise OptionError("comparing needs at least two models")
     fit_options = replace(make_options(options), normality=False)
     specs = [load_spec(m) for m in models]
+    names = _unique_names(specs)
+    if isinstance(data, (str, Path)) and Path(data).suffix.lower() == SUMMARY_SUFFIX:
+        return _compare_summary(specs, names, data, fit_options, group)
     frame, source = load_frame(data, sheet, missing_codes)
     frame = frame.set_axis([str(c) for c in frame.columns], axis=1)
     if keep:
@@ -70,13 +74,32 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     if group is not None and group in frame.columns:
         complete = complete.loc[complete[group].notna()]
     dropped = len(frame) - len(complete)
-    names = _unique_names(specs)
     results = []
     data_groups = []
     for spec in specs:
         groups, _ = moments_for(spec, complete, source, group, reference_group)
         data_groups.append(groups)
         results.append(fit_moments(spec, groups, fit_options, group_column=group))
+    tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
+    return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped)
+
+
+def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
+    """Rival models fitted to one summary-statistics file (normal-theory tests only)."""
+    if group is not None:
+        raise OptionError("groups need raw data; a summary-statistics file describes one group")
+    if fit_options.test != "normal":
+        raise OptionError("summary statistics allow only the normal-theory test")
+    moments, _ = read_summary_file(path)
+    results = []
+    for spec in specs:
+        check_columns(spec, list(moments.names), moments.source)
+        results.append(fit_moments(spec, moments, fit_options))
+    tests, not_nested = _pairwise_tests(specs, names, results, [[(None, moments)]] * len(specs))
+    return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), moments.n_obs, 0)
+
+
+def _pairwise_tests(specs, names, results, data_groups) -> tuple[list[DifferenceTest], list[NotNested]]:
     tests: list[DifferenceTest] = []
     not_nested: list[NotNested] = []
     for i in range(len(specs)):
@@ -93,7 +116,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                     tests.extend(scaled_difference_tests(results[a], results[b], names[a], names[b], c10))
             else:
                 not_nested.append(NotNested(names[a], names[b], reason))
-    return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped)
+    return tests, not_nested
 
 
 def scaling_at(m10, groups, df: int) -> float | None:
