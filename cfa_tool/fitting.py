@@ -340,6 +340,11 @@ def replicate_fit(spec: Spec, moments: SampleMoments, start: np.ndarray | None =
                   fit_indices_wanted: bool = True, max_iterations: int = 200) -> ReplicateFit:
     """A light fit for replications: estimates, standardized values, optionally SEs and the main indices."""
     options = FitOptions(max_iterations=max_iterations, normality=False)
+    with blas_threads_for(len(moments.names)):
+        return _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_wanted)
+
+
+def _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_wanted) -> ReplicateFit:
     est = estimate(spec, [(None, moments)], options, start=start)
     table, model = est.table, est.model
     values = model.entry_values(est.theta)

@@ -51,7 +51,9 @@ class NormalParts:
     """One group's pieces of the complete-data discrepancy at theta: enough to
     differentiate it along any direction (model parameters or candidates)."""
 
-    def __init__(self, chol: np.ndarray, sigma_inv: np.ndarray, M: np.ndarray, mean_gradient: np.ndarray | None):
+    def __init__(self, chol: np.ndarray, sigma_inv: np.ndarray, M: np.ndarray, mean_gradient: np.ndarray | None,
+                 value: float | None = None):
+        self.value = value  # this group's discrepancy, when it was computed along the way
         self.chol = chol
         self.sigma_inv = sigma_inv
         self.M = M  # Sigma^-1 (Sigma - S - d d') Sigma^-1
@@ -142,13 +144,16 @@ class NormalLikelihood:
         if np.any(np.diag(c[0]) <= 0) or not np.all(np.isfinite(c[0])):
             return None
         sigma_inv = cho_solve(c, np.eye(self.p), check_finite=False)
-        target = self.groups[g].covariance
+        S = self.groups[g].covariance
+        target = S
         mean_gradient = None
+        value = 2.0 * float(np.sum(np.log(np.diag(c[0])))) + float(np.sum(sigma_inv * S)) - self.logdet_S[g] - self.p
         if self.means:
             dev = self.groups[g].mean - mats.implied_mean()
             target = target + np.outer(dev, dev)
             mean_gradient = -2.0 * sigma_inv @ dev
-        return NormalParts(c[0], sigma_inv, sigma_inv @ (sigma - target) @ sigma_inv, mean_gradient)
+            value += float(dev @ sigma_inv @ dev)
+        return NormalParts(c[0], sigma_inv, sigma_inv @ (sigma - target) @ sigma_inv, mean_gradient, value)
 
     def evaluate(self, theta: np.ndarray) -> Evaluation | None:
         """Value, gradient and expected information at theta (None if some Sigma is not positive definite)."""
@@ -212,15 +217,22 @@ def evaluate_groups(likelihood, theta: np.ndarray, with_information: bool = True
     q = len(theta)
     gradient = np.zeros(q)
     information = np.zeros((q, q)) if with_information else None
+    values = []
     for g, w in enumerate(likelihood.weights):
         parts = likelihood.group_parts(theta, g)
         if parts is None:
             return None
+        values.append(None if getattr(parts, "value", None) is None else w * parts.value)
         d_sigma, d_mu = likelihood.model.jacobian(theta, g)
         gradient += w * parts.gradient(d_sigma, d_mu)
         if with_information:
             information += w * parts.information(d_sigma, d_mu)
-    value = likelihood.value(theta) if with_value else float("nan")
+    if not with_value:
+        value = float("nan")
+    elif all(v is not None for v in values):
+        value = float(sum(values))
+    else:
+        value = likelihood.value(theta)
     if with_value and not np.isfinite(value):
         return None
     return Evaluation(value, gradient, information)

@@ -50,6 +50,7 @@ def minimise(
                                "the starting values imply a covariance matrix that is not positive definite")
     iterations = 0
     previous_decrement = np.inf
+    hessian_usable = None
     for iterations in range(1, max_iterations + 1):
         g = current.gradient
         active = ((theta <= lower) & (g > 0)) | ((theta >= upper) & (g < 0))
@@ -65,11 +66,20 @@ def minimise(
         decrement = float(-g[inactive] @ step[inactive])
         if decrement < tolerance:
             return OptimizerResult(theta, current.value, g, iterations - 1, True, "converged")
-        # scoring converges linearly when the model misfits: then switch to Newton near the minimum
+        # scoring converges linearly when the model misfits: then switch to Newton near the minimum;
+        # with a closed-form Hessian Newton is cheap enough to take as soon as it is safe
         slow = decrement > 0.05 * previous_decrement
         previous_decrement = decrement
-        if gradient is not None and decrement < newton_below and slow:
-            newton = _newton_step(gradient, theta, g, inactive, hessian)
+        closed_form = None
+        if hessian is not None and hessian_usable is not False and decrement < CLOSED_FORM_NEWTON_BELOW:
+            closed_form = hessian(theta)
+            hessian_usable = closed_form is not None  # a likelihood without one says so once
+        if closed_form is not None:
+            newton = _newton_from(closed_form, theta, g, inactive)
+            if newton is not None:
+                step = newton
+        elif gradient is not None and decrement < newton_below and slow:
+            newton = _newton_step(gradient, theta, g, inactive, None if hessian_usable is False else hessian)
             if newton is not None:
                 step = newton
         slope = float(g @ step)
@@ -92,6 +102,21 @@ def minimise(
             break
         theta, current = trial, new
     return _quasi_newton(evaluate, value, theta, current, lower, upper, iterations, max_iterations)
+
+
+CLOSED_FORM_NEWTON_BELOW = 1e-2
+
+
+def _newton_from(full: np.ndarray, theta: np.ndarray, g: np.ndarray, inactive: np.ndarray) -> np.ndarray | None:
+    idx = np.flatnonzero(inactive)
+    H = full[np.ix_(idx, idx)]
+    try:
+        np.linalg.cholesky(H)
+    except np.linalg.LinAlgError:
+        return None
+    step = np.zeros_like(theta)
+    step[idx] = -scaled_solve(H, g[idx])
+    return step if np.all(np.isfinite(step)) else None
 
 
 def _newton_step(gradient, theta: np.ndarray, g: np.ndarray, inactive: np.ndarray, hessian=None) -> np.ndarray | None:
