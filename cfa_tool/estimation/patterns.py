@@ -56,6 +56,14 @@ def embedded_inverse(sigma: np.ndarray, observed: np.ndarray) -> tuple[np.ndarra
     if np.any(np.diag(chol) <= 0):
         return None
     logdet_sigma = 2.0 * float(np.sum(np.log(np.diag(chol))))
+    try:
+        return _schur_inverses(sigma, observed, logdet_sigma)
+    except np.linalg.LinAlgError:  # numerically singular although its Cholesky factor exists
+        return None
+
+
+def _schur_inverses(sigma: np.ndarray, observed: np.ndarray, logdet_sigma: float) -> tuple[np.ndarray, np.ndarray] | None:
+    P, p = observed.shape
     precision = np.linalg.inv(sigma)
     precision = 0.5 * (precision + precision.T)
     A = np.broadcast_to(precision, (P, p, p)).copy()
