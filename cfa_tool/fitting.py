@@ -179,16 +179,6 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         evaluation = likelihood.evaluate(theta)
         information = evaluation.information
         check_information_rank(information, table.free_labels)
-        if options.information == "observed" or not likelihood.complete_data:
-            # with incomplete data the observed information is the one valid under MAR (Kenward & Molenberghs 1998)
-            closed_form = likelihood.observed_hessian(theta) if hasattr(likelihood, "observed_hessian") else None
-            gradient = getattr(likelihood, "gradient", None) or (lambda t: likelihood.evaluate(t).gradient)
-            information = closed_form if closed_form is not None else observed_information(
-                gradient, theta, central=likelihood.complete_data)
-        cov_theta = parameter_covariance(information, n_total)
-        if robust_wanted:
-            cov_theta, trace_ug = robust_parts(model, theta, likelihood)
-        inference = wald_inference(values, model.J, cov_theta)
         per_group = []
         for g, gm in enumerate(likelihood.groups):
             dev = gm.mean - mats[g].implied_mean() if means else None
@@ -199,16 +189,25 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             fit = fit_indices(per_group, est.value, table.n_free, means, log_likelihood=fiml_log_likelihood(likelihood, theta),
                               baseline=fiml_baseline(likelihood))
         if robust_wanted:
+            cov_theta, trace_ug = robust_parts(model, theta, likelihood)
             robust = robust_fit(fit.chi_square, fit.df, trace_ug, fit.baseline_chi_square, fit.baseline_df,
                                 baseline_trace(likelihood), n_total, table.n_groups)
-        if yuan_bentler:
+        elif yuan_bentler:
             from cfa_tool.inference.robust_missing import robust_missing
 
             saturated = [(gm.mean, gm.covariance) for gm in likelihood.groups]
             cov_theta, c, c_base = robust_missing(likelihood, theta, saturated, fit.df, fit.baseline_df)
-            inference = wald_inference(values, model.J, cov_theta)
             robust = robust_fit(fit.chi_square, fit.df, c * fit.df, fit.baseline_chi_square, fit.baseline_df,
                                 c_base * fit.baseline_df, n_total, table.n_groups, method="Yuan-Bentler")
+        else:
+            if options.information == "observed" or not likelihood.complete_data:
+                # with incomplete data the observed information is the one valid under MAR (Kenward & Molenberghs 1998)
+                closed_form = likelihood.observed_hessian(theta) if hasattr(likelihood, "observed_hessian") else None
+                gradient = getattr(likelihood, "gradient", None) or (lambda t: likelihood.evaluate(t).gradient)
+                information = closed_form if closed_form is not None else observed_information(
+                    gradient, theta, central=likelihood.complete_data)
+            cov_theta = parameter_covariance(information, n_total)
+        inference = wald_inference(values, model.J, cov_theta)
         mis = modification_indices(model, theta, likelihood, exogenous_factors(spec))
         for g, m in enumerate(mats):
             prefix = f"group '{table.groups[g]}': " if multi else ""
@@ -267,15 +266,14 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             )
         )
     first = groups[0][1]
-    overall = DataSummary(
-        first.source,
-        sum(m.rows_read for _, m in groups),
-        sum(m.rows_dropped for _, m in groups),
-        n_total,
-        table.observed,
-        group_results[0].data.means if not multi else tuple(float(v) for v in pooled([m for _, m in groups])[1]),
-        group_results[0].data.sds if not multi else tuple(float(v) for v in np.sqrt(np.diag(pooled([m for _, m in groups])[0]))),
-    )
+    if multi:
+        pooled_cov, pooled_mean = pooled([m for _, m in groups])
+        item_means = tuple(float(v) for v in pooled_mean)
+        item_sds = tuple(float(v) for v in np.sqrt(np.diag(pooled_cov)))
+    else:
+        item_means, item_sds = group_results[0].data.means, group_results[0].data.sds
+    overall = DataSummary(first.source, sum(m.rows_read for _, m in groups), sum(m.rows_dropped for _, m in groups),
+                          n_total, table.observed, item_means, item_sds)
     return FitResult(
         model_name=spec.title or spec.source,
         model_source=spec.source,

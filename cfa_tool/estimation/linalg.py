@@ -26,3 +26,24 @@ def scaled_solve(H: np.ndarray, b: np.ndarray) -> np.ndarray:
 def scaled_inverse(H: np.ndarray) -> np.ndarray:
     d = _scales(H)
     return np.linalg.inv(H * np.outer(d, d)) * np.outer(d, d)
+
+
+def difference_hessian(gradient, theta: np.ndarray, central: bool = True, base: np.ndarray | None = None,
+                       indices: np.ndarray | None = None) -> np.ndarray:
+    """Second derivatives by differences of an analytic gradient, over ``indices`` (default all):
+    central, or forward from ``base`` (the gradient at theta) when each gradient is expensive."""
+    idx = np.arange(len(theta)) if indices is None else indices
+    if not central and base is None:
+        base = gradient(theta)
+    H = np.empty((len(idx), len(idx)))
+    for col, k in enumerate(idx):
+        h = (1e-5 if central else 1e-6) * max(1.0, abs(theta[k]))
+        up = theta.copy()
+        up[k] += h
+        if central:
+            down = theta.copy()
+            down[k] -= h
+            H[:, col] = (gradient(up)[idx] - gradient(down)[idx]) / (2 * h)
+        else:
+            H[:, col] = (gradient(up)[idx] - base[idx]) / h
+    return 0.5 * (H + H.T)

@@ -17,7 +17,7 @@ from typing import Callable
 import numpy as np
 from scipy.optimize import minimize
 
-from cfa_tool.estimation.linalg import scaled_solve
+from cfa_tool.estimation.linalg import difference_hessian, scaled_solve
 from cfa_tool.estimation.ml import Evaluation
 
 
@@ -70,16 +70,16 @@ def minimise(
         # with a closed-form Hessian Newton is cheap enough to take as soon as it is safe
         slow = decrement > 0.05 * previous_decrement
         previous_decrement = decrement
-        closed_form = None
+        idx = np.flatnonzero(inactive)
+        observed = None
         if hessian is not None and hessian_usable is not False and decrement < CLOSED_FORM_NEWTON_BELOW:
-            closed_form = hessian(theta)
-            hessian_usable = closed_form is not None  # a likelihood without one says so once
-        if closed_form is not None:
-            newton = _newton_from(closed_form, theta, g, inactive)
-            if newton is not None:
-                step = newton
-        elif gradient is not None and decrement < newton_below and slow:
-            newton = _newton_step(gradient, theta, g, inactive, None if hessian_usable is False else hessian)
+            full = hessian(theta)
+            hessian_usable = full is not None  # a likelihood without one says so once
+            observed = None if full is None else full[np.ix_(idx, idx)]
+        if observed is None and gradient is not None and decrement < newton_below and slow:
+            observed = difference_hessian(gradient, theta, central=False, base=g, indices=idx)
+        if observed is not None:
+            newton = _newton_from(observed, theta, g, idx)
             if newton is not None:
                 step = newton
         slope = float(g @ step)
@@ -107,34 +107,9 @@ def minimise(
 CLOSED_FORM_NEWTON_BELOW = 1e-2
 
 
-def _newton_from(full: np.ndarray, theta: np.ndarray, g: np.ndarray, inactive: np.ndarray) -> np.ndarray | None:
-    idx = np.flatnonzero(inactive)
-    H = full[np.ix_(idx, idx)]
-    try:
-        np.linalg.cholesky(H)
-    except np.linalg.LinAlgError:
-        return None
-    step = np.zeros_like(theta)
-    step[idx] = -scaled_solve(H, g[idx])
-    return step if np.all(np.isfinite(step)) else None
-
-
-def _newton_step(gradient, theta: np.ndarray, g: np.ndarray, inactive: np.ndarray, hessian=None) -> np.ndarray | None:
-    """Newton step with the observed Hessian, in closed form where the likelihood offers it and
-    otherwise from forward differences of the analytic gradient; None when that Hessian is not
+def _newton_from(H: np.ndarray, theta: np.ndarray, g: np.ndarray, idx: np.ndarray) -> np.ndarray | None:
+    """Newton step over the free parameters idx with observed Hessian H; None when H is not
     positive definite (then scoring continues)."""
-    idx = np.flatnonzero(inactive)
-    full = hessian(theta) if hessian is not None else None
-    if full is not None:
-        H = full[np.ix_(idx, idx)]
-    else:
-        H = np.empty((len(idx), len(idx)))
-        for col, k in enumerate(idx):
-            h = 1e-6 * max(1.0, abs(theta[k]))
-            shifted = theta.copy()
-            shifted[k] += h
-            H[:, col] = (gradient(shifted)[idx] - g[idx]) / h
-        H = 0.5 * (H + H.T)
     try:
         np.linalg.cholesky(H)
     except np.linalg.LinAlgError:

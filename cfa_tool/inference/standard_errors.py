@@ -14,7 +14,7 @@ from typing import Callable
 import numpy as np
 from cfa_tool import distributions as dist
 
-from cfa_tool.estimation.linalg import scaled_inverse
+from cfa_tool.estimation.linalg import difference_hessian, scaled_inverse
 
 
 @dataclass(frozen=True)
@@ -29,20 +29,7 @@ class Inference:
 def observed_information(gradient: Callable[[np.ndarray], np.ndarray], theta: np.ndarray, central: bool = True) -> np.ndarray:
     """Second derivatives of F by differences of the analytic gradient (central, or forward
     from the gradient at theta when each gradient is expensive)."""
-    q = len(theta)
-    H = np.zeros((q, q))
-    base = None if central else gradient(theta)
-    for k in range(q):
-        h = (1e-5 if central else 1e-6) * max(1.0, abs(theta[k]))
-        up = theta.copy()
-        up[k] += h
-        if central:
-            down = theta.copy()
-            down[k] -= h
-            H[:, k] = (gradient(up) - gradient(down)) / (2 * h)
-        else:
-            H[:, k] = (gradient(up) - base) / h
-    return 0.5 * (H + H.T)
+    return difference_hessian(gradient, theta, central)
 
 
 def parameter_covariance(information: np.ndarray, n_obs: int) -> np.ndarray:
