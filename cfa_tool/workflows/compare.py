@@ -7,17 +7,15 @@ from pathlib import Path
 
 import pandas as pd
 
-from cfa_tool.api import load_frame, load_spec, make_options, moments_for
-from cfa_tool.data.filters import apply_filters, parse_filter
+from cfa_tool.api import load_spec, make_options, moments_for, read_inputs_with_notes
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file
 from cfa_tool.errors import OptionError
-from cfa_tool.fitting import fit_moments
+from cfa_tool.estimation.ml import NormalLikelihood
+from cfa_tool.fitting import fit_moments, ordered_moments
+from cfa_tool.inference.robust import robust_parts
 from cfa_tool.language.spec import Spec
 from cfa_tool.results import FitResult, clean
-from cfa_tool.estimation.ml import NormalLikelihood
-from cfa_tool.fitting import ordered_moments
-from cfa_tool.inference.robust import robust_parts
 from cfa_tool.workflows.nesting import DifferenceTest, difference_test, is_nested, scaled_difference_tests
 
 
@@ -63,11 +61,9 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     names = _unique_names(specs)
     if isinstance(data, (str, Path)) and Path(data).suffix.lower() == SUMMARY_SUFFIX:
         return _compare_summary(specs, names, data, fit_options, group)
-    frame, source = load_frame(data, sheet, missing_codes)
-    frame = frame.set_axis([str(c) for c in frame.columns], axis=1)
-    if keep:
-        frame, _ = apply_filters(frame, [parse_filter(k) for k in keep], source)
-    for spec in specs:
+    _, loaded, _ = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep)
+    frame, source = loaded.frame, loaded.source
+    for spec in specs[1:]:
         check_columns(spec, list(frame.columns), source)
     used = sorted({x for spec in specs for x in spec.observed_names})
     complete = frame.dropna(subset=used)
