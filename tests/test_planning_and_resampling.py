@@ -148,7 +148,7 @@ def test_cli_planning_commands(tmp_path):
     assert proc.returncode == 0, proc.stderr
     assert (tmp_path / "sim.csv").read_text().splitlines()[0] == "y1,y2,y3,y4,y5,y6,y7,y8"
     proc = run("power", "--df", "40", "--n", "200", "--json", "-")
-    assert proc.returncode == 0 and '"required_n": 252' in proc.stdout
+    assert proc.returncode == 0 and '"required_n": 252' in proc.stdout  # MBS (1996) Table 4, df = 40 (from memory)
     proc = run("power-simulation", str(model), "--n", "100", "--replications", "20", "--workers", "1", "--json", "-")
     assert proc.returncode == 0, proc.stderr
     proc = run("bootstrap", str(model), "--data", str(tmp_path / "sim.csv"), "--replications", "20", "--workers", "1")
