@@ -140,17 +140,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
-    ordinal_items = _ordinal_items(spec, ordinal)
+    ordinal_items = ordinal_items_of(spec, ordinal)
     if ordinal_items:
-        if group is not None or fit_options.missing != "listwise" or fit_options.test != "normal":
-            raise OptionError("ordinal items are fitted with listwise deletion in one group; groups, full-information ML "
-                              "and the Satorra-Bentler test are for continuous items")
-        continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
-        from cfa_tool.data.polychoric import ordinal_moments
-        from cfa_tool.fitting import fit_ordinal
-
-        moments = ordinal_moments(frame, spec.observed_names, source, continuous)
-        result = fit_ordinal(spec, moments, fit_options, ordinal_estimator)
+        result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
         return replace(result, warnings=tuple(notes) + result.warnings)
     groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
     notes += group_notes
@@ -169,7 +161,47 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                    labels=labels if labels["variables"] or labels["values"] else None)
 
 
-def _ordinal_items(spec: Spec, ordinal) -> set[str]:
+def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: set[str], group: str | None,
+                 reference_group: str | None, fit_options, method: str) -> FitResult:
+    from cfa_tool import ordinal_fitting
+
+    check_ordinal_options(fit_options)
+    continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
+    if group is None:
+        if reference_group is not None:
+            raise OptionError("a reference group needs a group column")
+        from cfa_tool.data.polychoric import ordinal_moments
+
+        moments = ordinal_moments(frame, spec.observed_names, source, continuous)
+        return ordinal_fitting.fit_ordinal(spec, moments, fit_options, method)
+    groups, no_group = ordinal_groups(spec, frame, source, group, reference_group, continuous)
+    result = ordinal_fitting.fit_ordinal_groups(spec, groups, fit_options, method, group)
+    if no_group:
+        result = replace(result, warnings=(f"{no_group} rows have no value in the group column '{group}' and were left out",)
+                         + result.warnings)
+    return result
+
+
+def check_ordinal_options(fit_options) -> None:
+    if fit_options.missing != "listwise" or fit_options.test != "normal":
+        raise OptionError("ordinal items are fitted with listwise deletion and their own adjusted test; full-information "
+                          "ML and the Satorra-Bentler and Yuan-Bentler tests are for continuous items")
+
+
+def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, reference_group: str | None,
+                   continuous: frozenset = frozenset()):
+    """Per-group ordinal moments (every indicator must then be ordinal)."""
+    if continuous:
+        raise OptionError(f"with groups every indicator must be ordinal; '{sorted(continuous)[0]}' is not (declare it with "
+                          f"'ordinal' or --ordinal, or fit the groups as continuous items)")
+    if group in spec.observed_names:
+        raise OptionError(f"'{group}' is an indicator in the model and cannot also be the group column")
+    from cfa_tool.data.groups import split_ordinal_moments
+
+    return split_ordinal_moments(frame, group, spec.observed_names, source, reference_group)
+
+
+def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
     items = {n.text for n in spec.ordinal}
     if ordinal == "all":
         items |= set(spec.observed_names)

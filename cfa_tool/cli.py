@@ -56,6 +56,7 @@ def build_parser() -> argparse.ArgumentParser:
     inv.add_argument("--partial", choices=("none", "auto"), default="none",
                      help="'auto': when a step fails, free the constraint with the largest score test until it holds")
     inv.add_argument("--alpha", type=float, default=0.05, help="level of the chi-square difference tests (default .05)")
+    _add_ordinal_options(inv)
     _add_json_option(inv)
 
     rep = sub.add_parser("replicate", help="check that a model replicates in new data (or in random halves of one data set)")
@@ -162,12 +163,16 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--mi-top", type=int, default=None, metavar="N", help="show at most N modification indices")
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
     _add_test_option(p)
+    _add_ordinal_options(p)
+    p.add_argument("--missing", choices=("listwise", "full-information"), default="listwise",
+                   help="rows with missing answers: left out (listwise, the default) or used by full-information ML")
+
+
+def _add_ordinal_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--ordinal", metavar="ITEMS",
                    help="'all' or comma-separated items to treat as ordinal (thresholds and polychoric correlations)")
     p.add_argument("--ordinal-estimator", choices=("diagonally-weighted", "unweighted"), default="diagonally-weighted",
                    help="least squares for ordinal items (default diagonally-weighted)")
-    p.add_argument("--missing", choices=("listwise", "full-information"), default="listwise",
-                   help="rows with missing answers: left out (listwise, the default) or used by full-information ML")
 
 
 def _version() -> str:
@@ -242,7 +247,7 @@ def _run(args: argparse.Namespace) -> int:
         _check_output(args, [args.model, args.data])
         result = invariance(args.model, args.data, args.group, reference_group=args.reference_group,
                             partial=args.partial, alpha=args.alpha, sheet=args.sheet, missing_codes=args.missing_codes,
-                            keep=args.keep)
+                            keep=args.keep, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
         return _emit(args, result, render_invariance)
     if args.command == "replicate":
         return _replicate(args)

@@ -105,8 +105,8 @@ def test_ordinal_errors():
     many = data.assign(y1=np.arange(300) % 20)
     with pytest.raises(DataError, match="'y1' has 20 categories"):
         cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\n", many, ordinal="all")
-    with pytest.raises(OptionError, match="one group"):
-        cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\n", data.assign(site=np.arange(300) % 2), ordinal="all", group="site")
+    with pytest.raises(OptionError, match="listwise deletion"):
+        cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\n", data, ordinal="all", missing="full-information")
 
 
 def test_just_identified_ordinal_model_has_nothing_to_test():

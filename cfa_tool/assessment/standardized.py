@@ -35,6 +35,8 @@ def standardize_entries(mats: ModelMatrices, codes: np.ndarray, rows: np.ndarray
             full[e] = v / obs_sd[r]
         elif code == 5:  # mean of factor r
             lat[e] = full[e] = v / latent_sd[r]
+        elif code == 6:  # a threshold: its item is not known here, so the caller standardizes it
+            lat[e] = full[e] = v
         else:
             lat[e] = v
             if r == c:

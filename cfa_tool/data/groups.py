@@ -47,6 +47,20 @@ def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], sour
     return out, int(keys.isna().sum())
 
 
+def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
+                          reference: str | None = None) -> tuple[list[tuple[str, object]], int]:
+    """Per-group thresholds and polychoric correlations, every group on the same categories."""
+    from cfa_tool.data.polychoric import ordinal_moments, shared_levels
+
+    labels = group_labels(frame, column, source, reference)
+    keys = frame[column].map(lambda v: None if pd.isna(v) else _label(v))
+    parts = [frame.loc[(keys == label).to_numpy()] for label in labels]
+    levels = shared_levels(parts, names, source)
+    out = [(label, ordinal_moments(part, names, source, levels=levels, where=f" (group '{label}' of {column})"))
+           for label, part in zip(labels, parts)]
+    return out, int(keys.isna().sum())
+
+
 def pooled(moments: list[SampleMoments]) -> tuple[np.ndarray, np.ndarray]:
     """Pooled within-group covariance and grand mean (for starting values)."""
     n = sum(m.n_obs for m in moments)

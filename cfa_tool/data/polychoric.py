@@ -50,6 +50,12 @@ class OrdinalMoments:
     means: np.ndarray = field(repr=False, default=None)  # of the items' scores as given
     sds: np.ndarray = field(repr=False, default=None)
     continuous: frozenset = frozenset()
+    #: asymptotic covariance of sqrt(N)(s - sigma) for s = (all thresholds, then the correlations)
+    joint_gamma: np.ndarray | None = field(repr=False, default=None)
+
+    @property
+    def stacked_thresholds(self) -> np.ndarray:
+        return np.concatenate([np.asarray(t, dtype=float) for t in self.thresholds]) if self.thresholds else np.zeros(0)
 
     @property
     def pairs(self) -> tuple[np.ndarray, np.ndarray]:
@@ -145,14 +151,18 @@ def _polyserial_influence(x: np.ndarray, codes: np.ndarray, tau: np.ndarray, tau
 
 
 def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
-                    continuous: frozenset[str] = frozenset()) -> OrdinalMoments:
-    """Thresholds and correlations of ordinal items (and of any ``continuous`` items beside them)."""
+                    continuous: frozenset[str] = frozenset(), levels: dict[str, tuple[float, ...]] | None = None,
+                    where: str = "") -> OrdinalMoments:
+    """Thresholds and correlations of ordinal items (and of any ``continuous`` items beside them).
+
+    ``levels``: the categories every group must use (with groups, so that thresholds
+    compare); ``where`` names the group in messages."""
     values = numeric_columns(frame, names, source)
     complete = ~np.isnan(values).any(axis=1)
     data = values[complete]
     n, p = data.shape
     if n <= p:
-        raise DataError(f"{source}: {n} complete rows for {p} items; more rows are needed")
+        raise DataError(f"{source}{where}: {n} complete rows for {p} items; more rows are needed")
     codes = np.zeros_like(data, dtype=int)
     categories, thresholds, threshold_if = [], [], []
     for j, name in enumerate(names):
@@ -163,17 +173,27 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             thresholds.append(np.zeros(0))
             threshold_if.append(np.zeros((n, 0)))
             continue
-        levels = np.unique(data[:, j])
-        if len(levels) < 2:
-            raise DataError(f"{source}: ordinal item '{name}' has a single category ({levels[0]:g}); it needs at least two")
-        if len(levels) > MAX_CATEGORIES:
-            raise DataError(f"{source}: ordinal item '{name}' has {len(levels)} categories; with more than "
+        seen = np.unique(data[:, j])
+        if levels is not None:
+            item_levels = np.asarray(levels[name], dtype=float)
+            empty = [v for v in item_levels if v not in seen]
+            if empty:
+                raise DataError(f"{source}{where}: no one answered {_categories(empty)} on ordinal item '{name}', which "
+                                f"other groups used; thresholds cannot be compared across groups with an empty category "
+                                f"(merge it with a neighbouring category in every group, or drop the item)")
+        else:
+            item_levels = seen
+        if len(item_levels) < 2:
+            raise DataError(f"{source}{where}: ordinal item '{name}' has a single category ({item_levels[0]:g}); it needs at least two")
+        if len(item_levels) > MAX_CATEGORIES:
+            raise DataError(f"{source}{where}: ordinal item '{name}' has {len(item_levels)} categories; with more than "
                             f"{MAX_CATEGORIES} treat it as continuous")
-        codes[:, j] = np.searchsorted(levels, data[:, j])
-        counts = np.bincount(codes[:, j], minlength=len(levels))
+        levels_j = item_levels
+        codes[:, j] = np.searchsorted(levels_j, data[:, j])
+        counts = np.bincount(codes[:, j], minlength=len(levels_j))
         cumulative = np.cumsum(counts)[:-1] / n
         tau = dist.norm_ppf(cumulative)
-        categories.append(tuple(float(v) for v in levels))
+        categories.append(tuple(float(v) for v in levels_j))
         thresholds.append(tau)
         below = (codes[:, j][:, None] <= np.arange(len(tau))[None, :]).astype(float)
         threshold_if.append((below - cumulative[None, :]) / dist.norm_pdf(tau)[None, :])
@@ -208,9 +228,28 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             info_rt = np.einsum("ab,cab->c", d_rho / pi, d_tau)
             correction += threshold_if[item] @ info_rt
         influence[:, k] = (score - correction) / info_rr
-    gamma = influence.T @ influence / n
+    joint = np.hstack(threshold_if + [influence])
+    joint_gamma = joint.T @ joint / n
+    k = joint.shape[1] - influence.shape[1]
+    gamma = joint_gamma[k:, k:]
     if np.linalg.eigvalsh(R)[0] <= 0:
-        raise DataError(f"{source}: the polychoric correlation matrix is not positive definite; "
+        raise DataError(f"{source}{where}: the polychoric correlation matrix is not positive definite; "
                         f"some items may be near duplicates or some categories nearly empty")
     return OrdinalMoments(tuple(names), n, len(frame), int((~complete).sum()), source, tuple(categories), tuple(thresholds),
-                          R, gamma, codes, data.mean(axis=0), data.std(axis=0), frozenset(continuous))
+                          R, gamma, codes, data.mean(axis=0), data.std(axis=0), frozenset(continuous), joint_gamma)
+
+
+def _categories(values) -> str:
+    text = [f"{v:g}" for v in values]
+    return f"category {text[0]}" if len(text) == 1 else "categories " + ", ".join(text)
+
+
+def shared_levels(frames: list[pd.DataFrame], names: tuple[str, ...], source: str) -> dict[str, tuple[float, ...]]:
+    """The categories of each ordinal item over all groups (each group must then use every one)."""
+    seen: dict[str, set] = {name: set() for name in names}
+    for frame in frames:
+        values = numeric_columns(frame, names, source)
+        values = values[~np.isnan(values).any(axis=1)]  # the rows listwise deletion keeps
+        for j, name in enumerate(names):
+            seen[name].update(float(v) for v in np.unique(values[:, j]))
+    return {name: tuple(sorted(v)) for name, v in seen.items()}

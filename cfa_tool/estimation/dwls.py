@@ -60,14 +60,25 @@ class AdjustedTest:
     scaling: float  # tr(U Gamma) / df
 
 
-def adjusted_test(statistic: float, df: int, D: np.ndarray | None, weights: np.ndarray, gamma: np.ndarray) -> AdjustedTest:
-    """Mean-and-variance adjusted and scale-shifted statistics for N F (D: (q, pairs) or None for a model with no parameters)."""
+def residual_weights(D: np.ndarray | None, weights: np.ndarray) -> np.ndarray:
+    """U = W - W D' (D W D')^-1 D W for D of shape (q, statistics), or W with no parameters (Satorra 1989)."""
     W = np.diag(weights)
     if D is None or len(D) == 0:
-        U = W
-    else:
-        WD = W @ D.T
-        U = W - WD @ scaled_inverse(D @ WD) @ WD.T
+        return W
+    WD = D.T * weights[:, None]
+    return W - WD @ scaled_inverse(D @ WD) @ WD.T
+
+
+def adjusted_test(statistic: float, df: int, D: np.ndarray | None, weights: np.ndarray, gamma: np.ndarray) -> AdjustedTest:
+    """Mean-and-variance adjusted and scale-shifted statistics for N F (D: (q, pairs) or None for a model with no parameters)."""
+    return adjusted_statistics(statistic, df, residual_weights(D, weights), gamma)
+
+
+def adjusted_statistics(statistic: float, df: float, U: np.ndarray, gamma: np.ndarray) -> AdjustedTest:
+    """The adjustments of a statistic whose asymptotic distribution is that of z' U z with z ~ N(0, Gamma).
+
+    Also serves the difference of two nested fits, with U = U_restricted - U_general evaluated at
+    the restricted estimates (Satorra 2000; Asparouhov & Muthen 2006)."""
     UG = U @ gamma
     a1 = float(np.trace(UG))
     a2 = float(np.sum(UG * UG.T))

@@ -155,10 +155,18 @@ def _check_references(spec: Spec) -> None:
     known = set(_known_names(spec))
     latent = set(spec.factor_names)
     zero = {p.key() for p in spec.uncorrelated}
+    noninvariant = set(map(id, spec.noninvariant))
     for ref in all_refs(spec):
         for name in ref.names:
             if name not in known:
                 raise _unknown_name(spec, name, ref.location)
+        if ref.kind == "threshold":
+            if ref.names[0] not in spec.observed_names:
+                raise _fail(spec, f"'{ref.names[0]}' is a factor: thresholds belong to ordinal items", ref.location)
+            if id(ref) not in noninvariant:
+                raise _fail(spec, f"{ref}: thresholds come from the data and can only be named in 'noninvariant' "
+                                  f"(to let them differ across groups)", ref.location)
+            continue
         if ref.key() in existing:
             continue
         if ref.kind == "loading":

@@ -312,7 +312,8 @@ class _Builder:
             wanted = REFERENCE_KINDS[kind]
             if len(names) != wanted:
                 example = {"loading": "loading(factor, item)", "variance": "variance(name)", "covariance": "covariance(a, b)",
-                           "intercept": "intercept(item)", "mean": "mean(factor)"}[kind]
+                           "intercept": "intercept(item)", "mean": "mean(factor)",
+                           "threshold": "threshold(item)"}[kind]
                 raise self.error(f"'{kind}' takes {wanted} name{'s' if wanted > 1 else ''}, as in {example}", kind_token)
             refs.append(ParameterRef(kind, names, self.loc(kind_token), self.group))
         return tuple(refs)

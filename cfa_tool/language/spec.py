@@ -12,7 +12,7 @@ from dataclasses import dataclass, field
 from cfa_tool.errors import Location
 
 #: Parameter kinds a reference may name, with the number of names each takes.
-REFERENCE_KINDS: dict[str, int] = {"loading": 2, "variance": 1, "covariance": 2, "intercept": 1, "mean": 1}
+REFERENCE_KINDS: dict[str, int] = {"loading": 2, "variance": 1, "covariance": 2, "intercept": 1, "mean": 1, "threshold": 1}
 
 #: Classes of parameters that 'invariant' can hold equal across groups, with the
 #: parameter kinds each covers.
@@ -23,6 +23,7 @@ INVARIANCE_CLASSES: dict[str, tuple[str, ...]] = {
     "variances": ("factor_variance",),
     "covariances": ("factor_covariance",),
     "means": ("mean",),
+    "thresholds": ("threshold",),  # of ordinal items
 }
 
 #: Ways to give a factor its scale.

@@ -100,6 +100,20 @@ class StructuredModel:
             mats[code][rows[sel]] = values[sel]
         return ModelMatrices(*mats)
 
+    def thresholds(self, theta: np.ndarray, group: int = 0) -> np.ndarray:
+        """Thresholds of the ordinal items (matrix K), stacked item by item."""
+        sel = self._codes[group] == 6
+        out = np.empty(int(sel.sum()))
+        out[self._rows[group][sel]] = self._offset[group][sel] + self._J[group][sel] @ theta
+        return out
+
+    def threshold_jacobian(self, group: int = 0) -> np.ndarray:
+        """d thresholds / d theta, shape (q, number of thresholds); constant in theta."""
+        sel = np.flatnonzero(self._codes[group] == 6)
+        out = np.empty((self._J[group].shape[1], len(sel)))
+        out[:, self._rows[group][sel]] = self._J[group][sel].T
+        return out
+
     def implied(self, theta: np.ndarray, group: int = 0) -> np.ndarray:
         return self.matrices(theta, group).implied_covariance()
 

@@ -8,7 +8,9 @@ Bollen 1989, ch. 7; Sorbom 1974 for the mean structure):
 * ``P`` (m x m, symmetric): factor variances and covariances (for a factor
   below a higher-order factor: its disturbance variance);
 * ``T`` (p x p, symmetric): residual (error) variances and covariances;
-* ``N`` (p): indicator intercepts and ``M`` (m): factor means, with groups only.
+* ``N`` (p): indicator intercepts and ``M`` (m): factor means, with groups only;
+* ``K``: thresholds of ordinal items (all steps of all ordinal items, stacked),
+  with groups only; they enter no moment matrix (see :mod:`cfa_tool.estimation.ordinal`).
 
 Implied moments: Sigma = L A P A' L' + T and mu = N + L A M, A = (I - B)^-1.
 
@@ -30,14 +32,14 @@ from cfa_tool.errors import ModelError
 from cfa_tool.language.checks import all_refs, exogenous_factors
 from cfa_tool.language.spec import INVARIANCE_CLASSES, ParameterRef, Spec
 
-MATRIX_CODES = {"L": 0, "B": 1, "P": 2, "T": 3, "N": 4, "M": 5}
+MATRIX_CODES = {"L": 0, "B": 1, "P": 2, "T": 3, "N": 4, "M": 5, "K": 6}
 
 
 @dataclass(frozen=True)
 class Parameter:
     """One model-matrix entry of one group."""
 
-    kind: str  # loading, factor_variance, factor_covariance, residual_variance, residual_covariance, intercept, mean
+    kind: str  # loading, factor_variance, factor_covariance, residual_variance, residual_covariance, intercept, mean, threshold
     variables: tuple[str, ...]
     matrix: str
     row: int
@@ -111,6 +113,7 @@ def _kind_for(matrix: str, same: bool) -> str:
         "T": "residual_variance" if same else "residual_covariance",
         "N": "intercept",
         "M": "mean",
+        "K": "threshold",
     }[matrix]
 
 
@@ -119,12 +122,21 @@ def _fail(spec: Spec, message: str, ref_or_loc) -> ModelError:
     return ModelError(message, loc, spec.source_line(loc))
 
 
-def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mean_structure: bool = False) -> ParameterTable:
+def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mean_structure: bool = False,
+                          ordinal: dict[str, int] | None = None) -> ParameterTable:
     """Lay out the matrices and decide which entries are free, fixed or tied.
 
     ``groups``: group labels for a multi-group model (always with a mean
     structure); None for one group, which has intercepts and factor means
     only when ``mean_structure`` (as full-information ML needs).
+    ``ordinal``: with groups, the ordinal items and their numbers of thresholds.
+    Their latent responses are identified as Wu & Estabrook (2016) set out:
+    intercepts 0 and residual variances 1 in the first group (and in every group
+    while the item's thresholds may differ); once thresholds are held equal,
+    the other groups' intercepts and (for items with two or more thresholds,
+    or with equal loadings and intercepts) residual variances are free; the
+    factor means of later groups are free once thresholds, intercepts and a
+    loading of one of their ordinal indicators are held equal.
     """
     multi = groups is not None
     means = multi or mean_structure
@@ -136,6 +148,8 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     obs_ix = {n: i for i, n in enumerate(observed)}
     exo = exogenous_factors(spec)
     _check_group_use(spec, group_labels, multi, means)
+    ordinal = dict(ordinal or {})
+    _check_threshold_use(spec, ordinal)
 
     # ---- every entry of every group, keyed (group, kind, names)
     entries: dict[tuple, dict] = {}
@@ -174,6 +188,11 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             for f in latent:
                 add(g, ("mean", (f,)), "M", lat_ix[f], 0, (f,))
                 entries[(g, "mean", (f,))].update(fixed=0.0)
+        position = 0
+        for x in observed:
+            for step in range(ordinal.get(x, 0)):
+                add(g, ("threshold", (x, str(step + 1))), "K", position, 0, (x, str(step + 1)))
+                position += 1
 
     def groups_of(ref: ParameterRef) -> range | list[int]:
         return range(G) if ref.group is None else [group_labels.index(ref.group)]
@@ -199,6 +218,8 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
 
     def tied_across_groups(kind_key: tuple) -> bool:
         kind, names = kind_key
+        if kind == "threshold":  # noninvariant threshold(x) releases every threshold of x
+            return multi and G > 1 and "threshold" in invariant and (kind, names[:1]) not in exceptions
         return multi and G > 1 and _entry_kind(entries[(0, *kind_key)]) in invariant and kind_key not in exceptions
 
     # ---- the automatic scale of each factor in each group
@@ -236,8 +257,23 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                 key = (g, "mean", (f,))
                 if entries[key]["origin"] == "user":
                     continue
-                if _mean_identified(spec, factor, entries, tied_across_groups, lat_ix):
+                if _mean_identified(spec, factor, entries, tied_across_groups, lat_ix, ordinal):
                     entries[key].update(fixed=None, origin="default")
+
+    # ---- latent responses of ordinal items: their location and scale (Wu & Estabrook 2016)
+    for x, n_thresholds in ordinal.items():
+        thresholds_equal = tied_across_groups(("threshold", (x, "1")))
+        intercept_equal = tied_across_groups(("intercept", (x,)))
+        loadings_equal = all(tied_across_groups(k[1:]) or entries[k]["fixed"] is not None
+                             for k in entries if k[0] == 0 and k[1] == "loading" and k[2][1] == x)
+        for g in range(G):
+            free_intercept = g > 0 and thresholds_equal and not intercept_equal
+            free_scale = (g > 0 and thresholds_equal and not tied_across_groups(("variance", (x,)))
+                          and (n_thresholds >= 2 or (intercept_equal and loadings_equal)))
+            if entries[(g, "intercept", (x,))]["origin"] != "user" and not free_intercept:
+                entries[(g, "intercept", (x,))].update(fixed=0.0, origin="scale")
+            if entries[(g, "variance", (x,))]["origin"] != "user" and not free_scale:
+                entries[(g, "variance", (x,))].update(fixed=1.0, origin="scale")
 
     # ---- free indices: equal parameters share one index (union-find)
     parent: dict[tuple, tuple] = {}
@@ -352,13 +388,16 @@ def _invariant_kinds(spec: Spec) -> set[str]:
     return {kind for word in spec.invariant for kind in INVARIANCE_CLASSES[word]}
 
 
-def _mean_identified(spec, factor, entries, tied_across_groups, lat_ix) -> bool:
+def _mean_identified(spec, factor, entries, tied_across_groups, lat_ix, ordinal) -> bool:
     """A factor mean can be free in a later group when an intercept (or, for a
     higher-order factor, a lower factor's mean route) of one of its indicators
-    is held equal across groups together with its loading."""
+    is held equal across groups together with its loading (and, for an ordinal
+    indicator, its thresholds)."""
     for ind in factor.indicators:
         x = ind.text
         if x in lat_ix:
+            continue
+        if x in ordinal and not tied_across_groups(("threshold", (x, "1"))):
             continue
         if tied_across_groups(("intercept", (x,))) and (
             tied_across_groups(("loading", (factor.name.text, x)))
@@ -385,6 +424,16 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
             raise _fail(spec, f"there is no group '{ref.group}' in the data{hint}", ref)
 
 
+def _check_threshold_use(spec: Spec, ordinal: dict[str, int]) -> None:
+    for ref in spec.noninvariant:
+        if ref.kind == "threshold" and ref.names[0] not in ordinal:
+            raise _fail(spec, f"{ref}: '{ref.names[0]}' is not treated as ordinal in a multi-group fit, so it has no "
+                              f"thresholds (declare it with 'ordinal {ref.names[0]}' or --ordinal, and give --group)", ref)
+    if "thresholds" in spec.invariant and not ordinal:
+        raise ModelError("'invariant thresholds' applies to ordinal items in a multi-group fit, and this fit has none "
+                         "(declare them with 'ordinal ...' or --ordinal, and give --group)", None, None)
+
+
 def _merge_terms(terms: list[tuple[int, float]]) -> tuple[tuple[int, float], ...]:
     merged: dict[int, float] = {}
     for index, coef in terms:
@@ -392,13 +441,13 @@ def _merge_terms(terms: list[tuple[int, float]]) -> tuple[tuple[int, float], ...
     return tuple((i, c) for i, c in merged.items() if c != 0.0)
 
 
-_KIND_ORDER = {"loading": 0, "variance": 1, "covariance": 2, "intercept": 3, "mean": 4}
+_KIND_ORDER = {"loading": 0, "variance": 1, "covariance": 2, "intercept": 3, "mean": 4, "threshold": 5}
 
 
 def _sort_key(key: tuple, entry: dict) -> tuple:
     # by group; then loadings, variances (factors before residuals), covariances, intercepts, means
     g, kind = key[0], key[1]
-    matrix_rank = {"L": 0, "B": 0, "P": 1, "T": 2, "N": 3, "M": 4}[entry["matrix"]]
+    matrix_rank = {"L": 0, "B": 0, "P": 1, "T": 2, "N": 3, "M": 4, "K": 5}[entry["matrix"]]
     return (g, _KIND_ORDER[kind], matrix_rank, entry["col"] if kind == "loading" else entry["row"], entry["row"], entry["col"])
 
 

@@ -15,8 +15,9 @@ import numpy as np
 from cfa_tool.model.parameters import ParameterTable
 
 
-def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | None = None) -> np.ndarray:
-    """Start values for theta from a (pooled) covariance matrix and mean vector."""
+def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | None = None,
+                    thresholds: np.ndarray | None = None) -> np.ndarray:
+    """Start values for theta from a (pooled) covariance matrix, mean vector and (ordinal items) thresholds."""
     lat_ix = {n: i for i, n in enumerate(table.latent)}
     obs_ix = {n: i for i, n in enumerate(table.observed)}
     sd = np.sqrt(np.clip(np.diag(S), 1e-12, None))
@@ -109,6 +110,8 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
             target[e] = S[obs_ix[x], obs_ix[x]] * (1.0 - explained)
         elif par.kind == "intercept" and means is not None:
             target[e] = means[obs_ix[par.variables[0]]]
+        elif par.kind == "threshold" and thresholds is not None:
+            target[e] = thresholds[par.row]
         # residual covariances and factor means start at zero
 
     J, offset = table.mapping()

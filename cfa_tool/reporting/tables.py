@@ -25,6 +25,7 @@ KIND_TITLES = {
     "residual_covariance": "Residual covariances (standardized: residual correlations)",
     "intercept": "Intercepts",
     "mean": "Factor means",
+    "threshold": "Thresholds of ordinal items (standardized: on the latent response's scale in this group)",
 }
 
 
@@ -90,8 +91,8 @@ def estimate_tables(result, group: int = 0) -> list[ReportTable]:
             continue
         first = "Factor" if kind == "loading" else "Variable"
         cols = [(first, "l")]
-        if kind in ("loading", "factor_covariance", "residual_covariance"):
-            cols.append(("Indicator" if kind == "loading" else "With", "l"))
+        if kind in ("loading", "factor_covariance", "residual_covariance", "threshold"):
+            cols.append(({"loading": "Indicator", "threshold": "Step"}.get(kind, "With"), "l"))
         cols += [("Estimate", "r"), ("SE", "r"), ("z", "r"), ("p", "r"), ("95% CI", "r"), ("Standardized", "r")]
         if kind == "loading":
             cols.append(("R²", "r"))
@@ -99,7 +100,7 @@ def estimate_tables(result, group: int = 0) -> list[ReportTable]:
         previous = None
         for r in rows:
             names = list(r.variables)
-            if kind == "loading":
+            if kind in ("loading", "threshold"):
                 shown = names[0] if names[0] != previous else ""
                 previous = names[0]
                 names[0] = shown

@@ -16,7 +16,7 @@ from pathlib import Path
 
 import pandas as pd
 
-from cfa_tool.api import make_options, moments_for, read_inputs
+from cfa_tool.api import ordinal_items_of, check_ordinal_options, make_options, moments_for, ordinal_groups, read_inputs
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool.errors import OptionError
 from cfa_tool.fitting import assess, estimate
@@ -31,6 +31,16 @@ LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
     ("scalar", ("loadings", "intercepts"), ("intercept",)),
     ("strict", ("loadings", "intercepts", "residuals"), ("residual_variance", "residual_covariance")),
 )
+#: The ladder for ordinal items (Wu & Estabrook 2016): thresholds first, which for items with
+#: three categories or fewer fits exactly as well as the configural model.
+ORDINAL_LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
+    ("configural", (), ()),
+    ("thresholds", ("thresholds",), ("threshold",)),
+    ("metric", ("thresholds", "loadings"), ("loading",)),
+    ("scalar", ("thresholds", "loadings", "intercepts"), ("intercept",)),
+    ("strict", ("thresholds", "loadings", "intercepts", "residuals"), ("residual_variance", "residual_covariance")),
+)
+ORDINAL_DIFFERENCE = "scale-shifted adjusted difference (Asparouhov & Muthen 2006)"
 CFI_GUIDE = -0.01  # Cheung & Rensvold (2002)
 RMSEA_GUIDE = 0.015  # Chen (2007)
 PARTIAL_CHOICES = ("none", "auto")
@@ -101,8 +111,12 @@ class InvarianceResult:
 def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
                reference_group: str | None = None, partial: str = "none", alpha: float = 0.05,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
+               ordinal: str | list[str] | None = None, ordinal_estimator: str = "diagonally-weighted",
                **options) -> InvarianceResult:
-    """Fit the invariance ladder; with ``partial='auto'`` free the likeliest culprits until each step holds."""
+    """Fit the invariance ladder; with ``partial='auto'`` free the likeliest culprits until each step holds.
+
+    With ordinal items (an 'ordinal' statement or ``ordinal``) the ladder is configural, thresholds,
+    metric, scalar, strict, fitted by least squares on thresholds and polychoric correlations."""
     if partial not in PARTIAL_CHOICES:
         raise OptionError(f"partial must be one of {', '.join(PARTIAL_CHOICES)}, not '{partial}'")
     if not 0 < alpha < 1:
@@ -111,40 +125,118 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     if spec.invariant:
         raise OptionError("the invariance ladder sets 'invariant' itself; remove 'invariant' statements from the model file")
-    groups, notes = moments_for(spec, frame, source, group, reference_group)
+    ordinal_items = ordinal_items_of(spec, ordinal)
+    if ordinal_items:
+        check_ordinal_options(fit_options)
+        continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
+        groups, no_group = ordinal_groups(spec, frame, source, group, reference_group, continuous)
+        notes = [f"{no_group} rows have no value in the group column '{group}' and were left out"] if no_group else []
+        ladder = OrdinalLadder(ordinal_estimator)
+    else:
+        groups, notes = moments_for(spec, frame, source, group, reference_group)
+        ladder = NormalLadder()
     labels = tuple(label for label, _ in groups)
 
     steps: list[InvarianceStep] = []
     freed: list[FreedParameter] = []
     exceptions: list[ParameterRef] = list(spec.noninvariant)
-    previous: FitResult | None = None
+    previous = None  # (estimation, result) of the step below
     start = None
-    for level, classes, kinds in LEVELS:
+    for level, classes, kinds in ladder.levels:
         while True:
             level_spec = replace(spec, invariant=classes, noninvariant=tuple(exceptions))
-            est = estimate(level_spec, groups, fit_options, start=start)
-            result = assess(level_spec, groups, est, fit_options, group_column=group)
+            est = ladder.estimate(level_spec, groups, fit_options, start)
+            result = ladder.assess(level_spec, groups, est, fit_options, group)
             if not result.converged:
                 steps.append(InvarianceStep(level, result, None, False, ()))
                 return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
                                         tuple(notes) + (f"the {level} model did not converge; the ladder stops there",))
-            test = difference_test(result, previous, level, steps[-1].level) if previous is not None else None
+            test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
             holds = test is None or not (test.p_value < alpha)
-            culprits = tuple(equality_score_tests(est.model, est.theta, est.likelihood, kinds)) if kinds else ()
+            culprits = tuple(ladder.constraint_tests(est, kinds)) if kinds else ()
             culprits = tuple(c for c in culprits if _may_free(c, exceptions, level_spec, kinds))
             if holds or partial == "none" or not culprits or sum(f.level == level for f in freed) >= MAX_FREED_PER_STEP:
                 break
             top = culprits[0]
-            exceptions.append(ParameterRef(_ref_kind(top.kind), top.variables, spec.factors[0].name.location))
-            freed.append(FreedParameter(level, top.kind, top.variables, top.group, top.index))
+            exceptions.append(ParameterRef(_ref_kind(top.kind), _ref_names(top), spec.factors[0].name.location))
+            freed.append(FreedParameter(level, top.kind, _ref_names(top), top.group, top.index))
             start = None
         steps.append(InvarianceStep(level, result, test, holds, culprits))
-        previous = result
+        previous = (est, result)
         start = est.theta
     warnings = list(notes)
     if freed:
         warnings.append(SEARCH_WARNING)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, tuple(warnings))
+
+
+class NormalLadder:
+    """Continuous items: normal-theory ML and likelihood-ratio differences."""
+
+    levels = LEVELS
+
+    def estimate(self, spec, groups, options, start):
+        return estimate(spec, groups, options, start=start)
+
+    def assess(self, spec, groups, est, options, group_column):
+        return assess(spec, groups, est, options, group_column=group_column)
+
+    def difference(self, est, result, previous, level, previous_level) -> DifferenceTest:
+        return difference_test(result, previous[1], level, previous_level)
+
+    def constraint_tests(self, est, kinds):
+        return equality_score_tests(est.model, est.theta, est.likelihood, kinds)
+
+
+class OrdinalLadder:
+    """Ordinal items: least squares on thresholds and polychoric correlations, adjusted differences."""
+
+    levels = ORDINAL_LEVELS
+
+    def __init__(self, method: str):
+        self.method = method
+
+    def estimate(self, spec, groups, options, start):
+        from cfa_tool.ordinal_fitting import estimate_ordinal_groups
+
+        return estimate_ordinal_groups(spec, groups, options, self.method, start)
+
+    def assess(self, spec, groups, est, options, group_column):
+        from cfa_tool.ordinal_fitting import assess_ordinal_groups
+
+        return assess_ordinal_groups(spec, groups, est, options, group_column, self.method, modification=False)
+
+    def difference(self, est, result, previous, level, previous_level) -> DifferenceTest:
+        from cfa_tool.ordinal_fitting import ordinal_difference
+
+        general_est, general = previous
+        t = ordinal_difference(est, general_est)
+        r, g = result.robust, general.robust
+        return DifferenceTest(level, previous_level, t.scale_shifted, t.df, t.scale_shifted_p, ORDINAL_DIFFERENCE,
+                              r.cfi_robust - g.cfi_robust, r.rmsea_robust - g.rmsea_robust)
+
+    def constraint_tests(self, est, kinds):
+        from cfa_tool.assessment.modification import constrained_entries
+        from cfa_tool.ordinal_fitting import ordinal_score_tests
+
+        table = est.table
+        return ordinal_score_tests(est, [constrained_entries(table, kinds, g) + _pinned_entries(table, kinds, g)
+                                         for g in range(table.n_groups)])
+
+
+def _pinned_entries(table, kinds: tuple[str, ...], group: int) -> list:
+    """Intercepts and residual variances of ordinal items that a step fixes (at 0 and 1) in a later group:
+    for ordinal items, holding them equal across groups means fixing them at the first group's values."""
+    if group == 0:
+        return []
+    return [(par.kind, par.variables, par.matrix, par.row, par.col) for par in table.parameters
+            if par.group == group and par.kind in kinds and par.kind in ("intercept", "residual_variance")
+            and not par.free and par.origin == "scale"]
+
+
+def _ref_names(candidate: ModificationIndex) -> tuple[str, ...]:
+    # a threshold is released for its item as a whole
+    return candidate.variables[:1] if candidate.kind == "threshold" else candidate.variables
 
 
 def _ref_kind(kind: str) -> str:
@@ -153,18 +245,20 @@ def _ref_kind(kind: str) -> str:
 
 def _may_free(candidate: ModificationIndex, exceptions: list[ParameterRef], spec: Spec, kinds: tuple[str, ...]) -> bool:
     """Keep at least one loading and one intercept per factor held equal, so factor scales and means stay comparable."""
-    key = (_ref_kind(candidate.kind), candidate.variables)
+    key = (_ref_kind(candidate.kind), _ref_names(candidate))
     if any((r.kind, r.names) == key for r in exceptions):
         return False
-    if candidate.kind not in ("loading", "intercept"):
+    if candidate.kind == "threshold":
+        key = ("threshold", (candidate.variables[0],))
+    elif candidate.kind not in ("loading", "intercept"):
         return True
     freed = {(r.kind, r.names) for r in exceptions}
     for factor in spec.factors:
         items = [i.text for i in factor.indicators if i.text in spec.observed_names]
         if candidate.kind == "loading" and candidate.variables[0] == factor.name.text:
             keys = [("loading", (factor.name.text, x)) for x in items]
-        elif candidate.kind == "intercept" and candidate.variables[0] in items:
-            keys = [("intercept", (x,)) for x in items]
+        elif candidate.kind in ("intercept", "threshold") and candidate.variables[0] in items:
+            keys = [(candidate.kind, (x,)) for x in items]
         else:
             continue
         still_equal = [k for k in keys if k not in freed and k != key]

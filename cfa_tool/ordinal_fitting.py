@@ -1,0 +1,397 @@
+"""The fitting pipeline for ordinal items: thresholds and polychoric correlations -> FitResult.
+
+One group: least squares on the polychoric correlations with the latent responses
+standardized (their residual variances follow from unit total variances).
+Several groups: least squares on each group's thresholds and correlations, with
+thresholds as parameters so that they can be held equal across groups
+(:mod:`cfa_tool.estimation.ordinal`).  Both give robust standard errors, the
+mean-and-variance adjusted and scale-shifted tests, and modification indices as
+robust score tests.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from dataclasses import replace as dc_replace
+
+import numpy as np
+
+from cfa_tool.assessment.admissibility import admissibility_warnings
+from cfa_tool.assessment.fit_indices import FitIndices, chi_square_p, cfi_value, rmsea_interval, rmsea_value, tli_value
+from cfa_tool.assessment.modification import ModificationIndex, candidate_entries, constrained_entries
+from cfa_tool.assessment.reliability import reliability
+from cfa_tool.assessment.standardized import r_squared, standardize_entries
+from cfa_tool.errors import OptionError
+from cfa_tool.estimation.dwls import (AdjustedTest, WeightedLeastSquares, adjusted_statistics, adjusted_test,
+                                      residual_weights, robust_covariance)
+from cfa_tool.estimation.optimizer import minimise
+from cfa_tool.estimation.ordinal import GroupedOrdinalLeastSquares, least_squares_score_tests
+from cfa_tool.inference.robust import RobustFit
+from cfa_tool.inference.standard_errors import wald_inference
+from cfa_tool.language.checks import exogenous_factors
+from cfa_tool.language.spec import ParameterRef, Spec, ValueSetting
+from cfa_tool.model.implied import StructuredModel, entry_derivatives
+from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable, build_parameter_table
+from cfa_tool.model.starts import starting_values
+from cfa_tool.results import DataSummary, EstimateRow, FitResult, GroupResult
+
+ORDINAL_METHODS = ("diagonally-weighted", "unweighted")
+ORDINAL_NOTE = ("With ordinal items the fit indices come from the scale-shifted adjusted statistic; they were developed for "
+                "continuous data and tend to look better with ordinal data at the same misfit, so read them with care.")
+GROUPS_NOTE = ("Ordinal items in several groups: the latent responses have intercept 0 and residual variance 1 in the first "
+               "group (and wherever an item's thresholds differ across groups); loadings and residual variances are in "
+               "that metric; standardized values compare across groups (identification after Wu & Estabrook 2016).")
+MI_NOTE = "modification indices for ordinal items are robust score tests (Satorra 1989)"
+
+
+def _check_method(method: str) -> str:
+    if method not in ORDINAL_METHODS:
+        raise OptionError(f"the ordinal estimator must be one of {', '.join(ORDINAL_METHODS)}, not '{method}'")
+    return "diagonally weighted" if method == "diagonally-weighted" else "unweighted"
+
+
+def _fit_indices(T: float, df: int, T_base: float, base_df: int, n: int, n_free: int, srmr: float, groups: int = 1) -> FitIndices:
+    nan = float("nan")
+    root = np.sqrt(groups)
+    low, high = rmsea_interval(T, df, n)
+    return FitIndices(T, df, chi_square_p(T, df), cfi_value(T, df, T_base, base_df), tli_value(T, df, T_base, base_df),
+                      rmsea_value(T, df, n) * root, (low * root, high * root), nan, srmr, nan, nan, nan, nan, T_base, base_df,
+                      n_free)
+
+
+def _robust(test: AdjustedTest, base: AdjustedTest, df: int, base_df: int, n: int, groups: int = 1) -> RobustFit:
+    root = np.sqrt(groups)
+    low, high = rmsea_interval(test.scale_shifted, df, n)
+    return RobustFit("scale-shifted, mean and variance adjusted (Asparouhov & Muthen 2010)", test.scaling,
+                     test.scale_shifted, df, test.scale_shifted_p, base.scaling, base.scale_shifted,
+                     cfi_value(test.scale_shifted, df, base.scale_shifted, base_df),
+                     tli_value(test.scale_shifted, df, base.scale_shifted, base_df),
+                     rmsea_value(test.scale_shifted, df, n) * root, (low * root, high * root))
+
+
+def _modification_rows(table: ParameterTable, candidates: list, mi: np.ndarray, epc: np.ndarray, mats_of, label_of) -> list[ModificationIndex]:
+    """ModificationIndex rows from per-candidate statistics; candidates are (group, Candidate)."""
+    out = []
+    for k, (g, cand) in enumerate(candidates):
+        if not np.isfinite(mi[k]):
+            continue
+        kind, variables, matrix, row, col = cand
+        std, _ = standardize_entries(mats_of(g), np.array([MATRIX_CODES[matrix]]), np.array([row]), np.array([col]),
+                                     np.array([epc[k]]))
+        out.append(ModificationIndex(kind, variables, float(mi[k]), float(epc[k]), float(std[0]), label_of(g)))
+    out.sort(key=lambda r: -r.index)
+    return out
+
+
+# ---------------------------------------------------------------- one group
+
+
+def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted") -> FitResult:
+    """Least squares on polychoric correlations, with robust standard errors and adjusted tests."""
+    label = _check_method(method)
+    user_fixed = {r.key() for s in spec.fixed for r in s.refs}
+    for setting in spec.starts + tuple(spec.bounds):
+        for ref in setting.refs:
+            if ref.kind == "variance" and ref.names[0] in spec.observed_names:
+                raise OptionError(f"{ref}: residual variances of ordinal items are not parameters (the latent responses have unit variance)")
+    refs = tuple(ParameterRef("variance", (x,), spec.first_mention(x)) for x in spec.observed_names
+                 if ("variance", (x,)) not in user_fixed)
+    derived_items = {r.names[0] for r in refs}  # residual variances that follow from unit latent-response variances
+    fixed_spec = dc_replace(spec, fixed=spec.fixed + ((ValueSetting(refs, 1.0),) if refs else ()))
+    table = build_parameter_table(fixed_spec)
+    p = table.p
+    n_corr = p * (p - 1) // 2
+    if table.n_free > n_corr:
+        raise OptionError(f"the model has {table.n_free} free parameters but {p} ordinal items give only {n_corr} "
+                          f"correlations, so it cannot be identified")
+    order = [moments.names.index(n) for n in table.observed]
+    R = moments.correlations[np.ix_(order, order)]
+    full_pairs = np.tril_indices(len(moments.names), -1)
+    index_of = {(int(a), int(b)): k for k, (a, b) in enumerate(zip(*full_pairs))}
+    pairs = np.tril_indices(p, -1)
+    take = [index_of[tuple(sorted((order[i], order[j]), reverse=True))] for i, j in zip(*pairs)]
+    gamma = moments.gamma[np.ix_(take, take)]
+    weights = 1.0 / np.diag(gamma) if method == "diagonally-weighted" else np.ones(len(take))
+    model = StructuredModel(table)
+    ls = WeightedLeastSquares(model, R[pairs], weights, moments.n_obs)
+    start = starting_values(table, R, None)
+    opt = minimise(ls.evaluate, ls.value, start, table.lower, table.upper, options.max_iterations)
+    theta = opt.theta
+    n = moments.n_obs
+    mats = model.matrices(theta)
+    common = np.diag(mats.implied_covariance() - mats.T)
+    T_final = mats.T.copy()
+    T_final[np.diag_indices(p)] = 1.0 - common
+    final = dc_replace(mats, T=T_final)
+    values = model.entry_values(theta)
+    codes, rows, cols = table.entry_arrays()
+    for e, par in enumerate(table.parameters):
+        if par.kind == "residual_variance" and par.variables[0] in derived_items:
+            values[e] = T_final[par.row, par.row]
+    std_all, std_lv = standardize_entries(final, codes, rows, cols, values)
+    warnings = []
+    if moments.rows_dropped:
+        warnings.append(f"{moments.rows_dropped} of {moments.rows_read} rows had a missing answer on a model variable and "
+                        f"were left out (listwise deletion); {n} rows were analysed")
+    fit = robust = inference = None
+    sigma = final.implied_covariance()
+    modification: list[ModificationIndex] = []
+    if opt.converged:
+        D = ls.jacobian(theta)
+        cov_theta = robust_covariance(D, weights, gamma, n)
+        inference = wald_inference(values, model.J, cov_theta)
+        df = n_corr - table.n_free
+        T = n * opt.value
+        T_base = n * float(R[pairs] @ (weights * R[pairs]))
+        test = adjusted_test(T, df, D, weights, gamma)
+        base = adjusted_test(T_base, n_corr, None, weights, gamma)
+        srmr = float(np.sqrt(np.mean((R - sigma)[np.tril_indices(p)] ** 2)))
+        fit = _fit_indices(T, df, T_base, n_corr, n, table.n_free, srmr)
+        robust = _robust(test, base, df, n_corr, n)
+        cands = candidate_entries(table, exogenous_factors(spec), 0)
+        if cands and df > 0:
+            c_codes = np.array([MATRIX_CODES[c[2]] for c in cands])
+            c_rows = np.array([c[3] for c in cands])
+            c_cols = np.array([c[4] for c in cands])
+            D_cand = entry_derivatives(final, c_codes, c_rows, c_cols)[0][:, pairs[0], pairs[1]]
+            mi, epc = least_squares_score_tests(D, D_cand, R[pairs] - sigma[pairs], weights, gamma, n)
+            modification = _modification_rows(table, [(0, c) for c in cands], mi, epc, lambda g: final, lambda g: None)
+        warnings.extend(admissibility_warnings(final, table.observed, table.latent))
+        warnings.append(ORDINAL_NOTE)
+    else:
+        warnings.append(f"the estimation did not converge ({opt.message}); no result from it should be interpreted")
+    nan = float("nan")
+    estimates = []
+    for e, par in enumerate(table.parameters):
+        derived = par.kind == "residual_variance" and par.variables[0] in derived_items
+        if inference is not None and not derived:
+            se, z, pv = inference.se[e], inference.z[e], inference.p_value[e]
+            ci = (inference.ci_low[e], inference.ci_high[e]) if par.free else (nan, nan)
+        else:
+            se = z = pv = nan
+            ci = (nan, nan)
+        estimates.append(EstimateRow(par.kind, par.variables, par.free and not derived, float(values[e]), float(se), float(z),
+                                     float(pv), (float(ci[0]), float(ci[1])), float(std_all[e]), float(std_lv[e]),
+                                     "derived" if derived else par.origin))
+    factors, htmt = reliability(final, table.observed, table.latent, R)
+    summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
+                          tuple(float(moments.means[k]) for k in order), tuple(float(moments.sds[k]) for k in order))
+    if moments.continuous:
+        warnings.append("continuous items are analysed beside the ordinal ones in the correlation metric (polyserial and "
+                        "Pearson correlations): their unstandardized estimates are in standard-deviation units")
+    group = GroupResult(None, summary, fit.chi_square if fit else None, fit.srmr if fit else None,
+                        dict(zip(table.observed, (float(v) for v in r_squared(final)))), R, sigma, R - sigma, np.zeros(p),
+                        None, None, tuple(factors), tuple(htmt))
+    return FitResult(
+        model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
+        estimator=f"{label} least squares on polychoric correlations (ordinal items"
+                  + (", with polyserial correlations for continuous items" if moments.continuous else "")
+                  + "), robust standard errors",
+        converged=opt.converged, iterations=opt.iterations, message=opt.message, n_obs=n, data=summary,
+        observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=tuple(estimates),
+        modification_indices=tuple(modification), groups=(group,), warnings=tuple(warnings), mi_threshold=options.mi_threshold,
+        mi_top=options.mi_top, theta=theta,
+    )
+
+
+# ---------------------------------------------------------------- several groups
+
+
+@dataclass(frozen=True, eq=False)
+class OrdinalEstimation:
+    """A multi-group ordinal fit before assessment (what the invariance ladder reuses)."""
+
+    table: ParameterTable
+    model: StructuredModel
+    objective: GroupedOrdinalLeastSquares
+    theta: np.ndarray
+    value: float
+    converged: bool
+    iterations: int
+    message: str
+
+    @property
+    def statistic(self) -> float:
+        return self.objective.n_total * self.value
+
+    @property
+    def df(self) -> int:
+        return sum(len(t) for t in self.objective.targets) - self.table.n_free
+
+
+def _in_model_order(groups: list, observed: tuple[str, ...]) -> list:
+    moments = [m for _, m in groups]
+    if any(tuple(m.names) != tuple(observed) for m in moments):
+        raise ValueError("ordinal moments must list the items in the model's order")
+    return moments
+
+
+def estimate_ordinal_groups(spec: Spec, groups: list, options, method: str = "diagonally-weighted",
+                            start: np.ndarray | None = None) -> OrdinalEstimation:
+    """Build the multi-group ordinal model and minimise its least-squares discrepancy."""
+    _check_method(method)
+    labels = tuple(label for label, _ in groups)
+    observed = spec.observed_names
+    moments = _in_model_order(groups, observed)
+    n_thresholds = {x: len(t) for x, t in zip(observed, moments[0].thresholds)}
+    table = build_parameter_table(spec, labels, ordinal=n_thresholds)
+    n_stats = sum(len(m.stacked_thresholds) + len(observed) * (len(observed) - 1) // 2 for m in moments)
+    if table.n_free > n_stats:
+        raise OptionError(f"the model has {table.n_free} free parameters but the groups' thresholds and correlations "
+                          f"give only {n_stats} statistics, so it cannot be identified")
+    model = StructuredModel(table)
+    objective = GroupedOrdinalLeastSquares(model, moments, method)
+    if start is None or len(start) != table.n_free:
+        weights = objective.weights
+        R = sum(w * m.correlations for w, m in zip(weights, moments))
+        tau = sum(w * m.stacked_thresholds for w, m in zip(weights, moments))
+        start = starting_values(table, R, np.zeros(len(observed)), thresholds=tau)
+    opt = minimise(objective.evaluate, objective.value, start, table.lower, table.upper, options.max_iterations)
+    return OrdinalEstimation(table, model, objective, opt.theta, opt.value, opt.converged, opt.iterations, opt.message)
+
+
+def ordinal_score_tests(est: OrdinalEstimation, candidates: list[list]) -> list[ModificationIndex]:
+    """Robust score tests for each group's candidate entries (``candidates[g]``) of a multi-group ordinal fit."""
+    obj, theta, table = est.objective, est.theta, est.table
+    D, e, w, gamma = obj.stacked(theta)
+    slices = obj.group_slices()
+    rows_all, flat = [], []
+    for g, cands in enumerate(candidates):
+        if not cands:
+            continue
+        codes = np.array([MATRIX_CODES[c[2]] for c in cands])
+        rows = np.array([c[3] for c in cands])
+        cols = np.array([c[4] for c in cands])
+        block = np.zeros((len(cands), D.shape[1]))
+        block[:, slices[g]] = obj.entry_jacobian(theta, g, codes, rows, cols)
+        rows_all.append(block)
+        flat.extend((g, c) for c in cands)
+    if not flat:
+        return []
+    mi, epc = least_squares_score_tests(D, np.vstack(rows_all), e, w, gamma, obj.n_total)
+    return _modification_rows(table, flat, mi, epc, lambda g: est.model.matrices(theta, g), lambda g: table.groups[g])
+
+
+def ordinal_difference(restricted: OrdinalEstimation, general: OrdinalEstimation) -> AdjustedTest:
+    """Adjusted difference test of two nested multi-group ordinal fits with the same weights.
+
+    T_d = N (F_0 - F_1), adjusted with U_d = U_0 - U_1, both evaluated at the restricted
+    estimates (Satorra 2000; Asparouhov & Muthen 2006); the general model's parameters there
+    are found from the restricted model's matrix entries, which both models share."""
+    obj0, obj1 = restricted.objective, general.objective
+    D0, _, w, gamma = obj0.stacked(restricted.theta)
+    entries = restricted.model.entry_values(restricted.theta)
+    theta1, *_ = np.linalg.lstsq(general.model.J, entries - general.model.offset, rcond=None)
+    D1, *_ = obj1.stacked(theta1)
+    U = residual_weights(D0, w) - residual_weights(D1, w)
+    diff = restricted.statistic - general.statistic
+    return adjusted_statistics(max(diff, 0.0), restricted.df - general.df, U, gamma)
+
+
+def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, options, group_column: str,
+                          method: str = "diagonally-weighted", modification: bool = True) -> FitResult:
+    """Robust standard errors, adjusted tests, indices and score tests of a multi-group ordinal fit."""
+    label = _check_method(method)
+    table, model, obj, theta = est.table, est.model, est.objective, est.theta
+    G = len(groups)
+    n = obj.n_total
+    p = table.p
+    pairs = np.tril_indices(p, -1)
+    moments = _in_model_order(groups, table.observed)
+    values = model.entry_values(theta)
+    codes, rows, cols = table.entry_arrays()
+    group_of = table.group_array()
+    std_all, std_lv = np.full(len(values), np.nan), np.full(len(values), np.nan)
+    mats = [model.matrices(theta, g) for g in range(G)]
+    for g in range(G):
+        sel = group_of == g
+        std_all[sel], std_lv[sel] = standardize_entries(mats[g], codes[sel], rows[sel], cols[sel], values[sel])
+        sigma = mats[g].implied_covariance()
+        mu = mats[g].implied_mean()
+        thr = np.flatnonzero(sel & (codes == 6))
+        item = obj.item_of[rows[thr]]
+        std_all[thr] = std_lv[thr] = (values[thr] - mu[item]) / np.sqrt(np.diag(sigma)[item])
+    warnings = []
+    dropped = sum(m.rows_dropped for m in moments)
+    if dropped:
+        warnings.append(f"{dropped} rows had a missing answer on a model variable and were left out (listwise deletion)")
+    fit = robust = inference = None
+    modification_rows: list[ModificationIndex] = []
+    shares = [None] * G
+    srmrs = [None] * G
+    if est.converged:
+        D, e, w, gamma = obj.stacked(theta)
+        inference = wald_inference(values, model.J, robust_covariance(D, w, gamma, n))
+        df = est.df
+        T = est.statistic
+        slices = obj.group_slices()
+        K = obj.n_thresholds
+        base_df = G * len(pairs[0])
+        T_base = 0.0
+        D_base = np.zeros((G * K, D.shape[1]))
+        for g in range(G):
+            r = moments[g].correlations[pairs]
+            T_base += n * obj.weights[g] * float(r @ (obj.w[g][K:] * r))
+            D_base[g * K:(g + 1) * K, slices[g].start:slices[g].start + K] = np.eye(K)
+            eg = e[slices[g]]
+            shares[g] = float(moments[g].n_obs * eg @ (obj.w[g] * eg))
+            sigma = mats[g].implied_covariance()
+            sd = np.sqrt(np.diag(sigma))
+            srmrs[g] = float(np.sqrt(np.mean((moments[g].correlations - sigma / np.outer(sd, sd))[np.tril_indices(p)] ** 2)))
+        srmr = float(sum(wg * s for wg, s in zip(obj.weights, srmrs)))
+        test = adjusted_test(T, df, D, w, gamma)
+        base = adjusted_test(T_base, base_df, D_base, w, gamma)
+        fit = _fit_indices(T, df, T_base, base_df, n, table.n_free, srmr, G)
+        robust = _robust(test, base, df, base_df, n, G)
+        if modification and df > 0:
+            exo = exogenous_factors(spec)
+            modification_rows = ordinal_score_tests(est, [candidate_entries(table, exo, g) for g in range(G)])
+        for g in range(G):
+            warnings.extend(f"group {table.groups[g]}: {w_}" for w_ in admissibility_warnings(mats[g], table.observed, table.latent))
+        warnings.append(GROUPS_NOTE)
+        warnings.append(ORDINAL_NOTE)
+    else:
+        warnings.append(f"the estimation did not converge ({est.message}); no result from it should be interpreted")
+    nan = float("nan")
+    estimates = []
+    for e_, par in enumerate(table.parameters):
+        if inference is not None:
+            se, z, pv = inference.se[e_], inference.z[e_], inference.p_value[e_]
+            ci = (inference.ci_low[e_], inference.ci_high[e_]) if par.free else (nan, nan)
+        else:
+            se = z = pv = nan
+            ci = (nan, nan)
+        estimates.append(EstimateRow(par.kind, par.variables, par.free, float(values[e_]), float(se), float(z), float(pv),
+                                     (float(ci[0]), float(ci[1])), float(std_all[e_]), float(std_lv[e_]), par.origin,
+                                     table.groups[par.group]))
+    group_results = []
+    for g, (lab, m) in enumerate(groups):
+        mg = moments[g]
+        sigma = mats[g].implied_covariance()
+        sd = np.sqrt(np.clip(np.diag(sigma), 1e-300, None))
+        rho = sigma / np.outer(sd, sd)
+        summary = DataSummary(mg.source, mg.rows_read, mg.rows_dropped, mg.n_obs, table.observed,
+                              tuple(float(v) for v in mg.means), tuple(float(v) for v in mg.sds))
+        factors, htmt = reliability(mats[g], table.observed, table.latent, mg.correlations)
+        group_results.append(GroupResult(lab, summary, shares[g], srmrs[g],
+                                         dict(zip(table.observed, (float(v) for v in r_squared(mats[g])))),
+                                         mg.correlations, rho, mg.correlations - rho, np.zeros(p), None, None,
+                                         tuple(factors), tuple(htmt)))
+    total = DataSummary(moments[0].source, sum(m.rows_read for m in moments), dropped, n, table.observed,
+                        tuple(float(v) for v in sum(m.n_obs * m.means for m in moments) / n),
+                        tuple(float(v) for v in moments[0].sds))
+    return FitResult(
+        model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
+        estimator=f"{label} least squares on thresholds and polychoric correlations (ordinal items, {G} groups), "
+                  f"robust standard errors",
+        converged=est.converged, iterations=est.iterations, message=est.message, n_obs=n, data=total,
+        observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=tuple(estimates),
+        modification_indices=tuple(modification_rows), groups=tuple(group_results), group_column=group_column,
+        warnings=tuple(warnings), mi_threshold=options.mi_threshold, mi_top=options.mi_top, theta=theta,
+    )
+
+
+def fit_ordinal_groups(spec: Spec, groups: list, options, method: str = "diagonally-weighted",
+                       group_column: str = "group") -> FitResult:
+    est = estimate_ordinal_groups(spec, groups, options, method)
+    return assess_ordinal_groups(spec, groups, est, options, group_column, method)
