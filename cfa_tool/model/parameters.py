@@ -149,7 +149,8 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     exo = exogenous_factors(spec)
     _check_group_use(spec, group_labels, multi, means)
     ordinal = dict(ordinal or {})
-    _check_threshold_use(spec, ordinal)
+    if multi:  # without groups, invariance statements have nothing to hold equal
+        _check_threshold_use(spec, ordinal)
 
     # ---- every entry of every group, keyed (group, kind, names)
     entries: dict[tuple, dict] = {}
