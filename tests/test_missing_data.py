@@ -41,6 +41,20 @@ def test_without_missing_values_fiml_is_ml(hs_data, hs_three):
     assert intercepts["x1"] == pytest.approx(hs_data["x1"].mean(), rel=1e-8)
 
 
+def test_fiml_with_groups(hs_data, hs_holes):
+    # no gaps: full-information ML by school is the configural multi-group ML fit, 115.851 on 48 df
+    # (Holzinger-Swineford configural model; value recalled from memory, as in test_groups_and_invariance)
+    full = cfa_tool.fit(THREE_FACTORS, hs_data, group="school", missing="full-information")
+    assert full.fit.chi_square == pytest.approx(115.851, abs=2e-3) and full.fit.df == 48
+    # with gaps, each group's full-information fit is that group's separate fit (the groups share nothing)
+    joint = cfa_tool.fit(THREE_FACTORS, hs_holes, group="school", missing="full-information", test="yuan-bentler")
+    parts = [cfa_tool.fit(THREE_FACTORS, hs_holes[hs_holes.school == s].drop(columns="school"), missing="full-information")
+             for s in ("Grant-White", "Pasteur")]
+    assert joint.converged and joint.robust is not None
+    assert joint.fit.chi_square == pytest.approx(sum(p.fit.chi_square for p in parts), rel=1e-6)
+    assert joint.fit.log_likelihood == pytest.approx(sum(p.fit.log_likelihood for p in parts), rel=1e-8)
+
+
 def test_fiml_estimates_agree_with_semopy(hs_holes):
     # semopy's model with a mean structure fitted by ML to incomplete rows is FIML
     import semopy
