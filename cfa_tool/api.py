@@ -118,7 +118,10 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ``ordinal``: 'all' or a list of items to treat as ordinal (as does an 'ordinal' statement in
     the model): thresholds and polychoric correlations, fitted by ``ordinal_estimator``
     ('diagonally-weighted' or 'unweighted' least squares) with robust standard errors.
-    ``options``: ``information``, ``test``, ``missing``, ``mi_threshold``, ``mi_top``, ``max_iterations``.
+    ``options``: ``information``, ``test``, ``missing``, ``mi_threshold``, ``mi_top``, ``max_iterations``;
+    ``diagnostics=False`` and ``modification_indices=False`` skip the extras (normality tests,
+    reliability, residual and case diagnostics; score tests) in loops that only need estimates,
+    standard errors and fit indices.
     """
     fit_options = make_options(options)
     if covariance is not None or (isinstance(data, (str, Path)) and Path(data).suffix.lower() == SUMMARY_SUFFIX):
@@ -134,7 +137,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         check_columns(spec, list(moments.names), moments.source)
         if fit_options.missing != "listwise" or fit_options.test != "normal":
             raise OptionError("summary statistics allow only the normal-theory test with complete data")
-        result = fit_moments(spec, moments, replace(fit_options, normality=False))
+        result = fit_moments(spec, moments, replace(fit_options, diagnostics=False))
         return replace(result, warnings=tuple(notes) + result.warnings)
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")

@@ -27,6 +27,11 @@ def ncx2_sf(x, df, nc):
     return 1.0 - ncx2_cdf(x, df, nc)
 
 
+def ncx2_noncentrality(x, df, p):
+    """The noncentrality at which the noncentral chi-square cdf at x equals p."""
+    return float(special.chndtrinc(x, df, p))
+
+
 def ncx2_ppf(q, df, nc):
     return special.chndtrix(q, df, nc) if nc > 0 else chi2_ppf(q, df)
 

@@ -49,7 +49,8 @@ class FitOptions:
     mi_top: int | None = None
     max_iterations: int = 500
     test: str = "normal"
-    normality: bool = True  # Mardia's tests (workflows that refit many times turn them off)
+    diagnostics: bool = True  # Mardia's tests, reliability, normalized residuals, case diagnostics
+    modification_indices: bool = True  # (workflows and loops that refit many times turn these off)
     missing: str = "listwise"
 
     def __post_init__(self) -> None:
@@ -208,7 +209,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                     gradient, theta, central=likelihood.complete_data)
             cov_theta = parameter_covariance(information, n_total)
         inference = wald_inference(values, model.J, cov_theta)
-        mis = modification_indices(model, theta, likelihood, exogenous_factors(spec))
+        if options.modification_indices:
+            mis = modification_indices(model, theta, likelihood, exogenous_factors(spec))
         for g, m in enumerate(mats):
             prefix = f"group '{table.groups[g]}': " if multi else ""
             warnings.extend(prefix + w for w in admissibility_warnings(m, table.observed, table.latent))
@@ -261,8 +263,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 residual_correlations=correlation_residuals(gm.covariance, sigma),
                 sample_mean=gm.mean,
                 implied_mean=mats[g].implied_mean() if means else None,
-                normality=mardia(gm.rows) if options.normality and gm.rows is not None else None,
-                **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.normality),
+                normality=mardia(gm.rows) if options.diagnostics and gm.rows is not None else None,
+                **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics),
             )
         )
     first = groups[0][1]
@@ -337,7 +339,7 @@ class ReplicateFit:
 def replicate_fit(spec: Spec, moments: SampleMoments, start: np.ndarray | None = None, standard_errors: bool = False,
                   fit_indices_wanted: bool = True, max_iterations: int = 200) -> ReplicateFit:
     """A light fit for replications: estimates, standardized values, optionally SEs and the main indices."""
-    options = FitOptions(max_iterations=max_iterations, normality=False)
+    options = FitOptions(max_iterations=max_iterations, diagnostics=False)
     with blas_threads_for(len(moments.names)):
         return _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_wanted)
 

@@ -149,7 +149,7 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
         fit = _fit_indices(T, df, T_base, n_corr, n, table.n_free, srmr)
         robust = _robust(test, base, df, n_corr, n)
         cands = candidate_entries(table, exogenous_factors(spec), 0)
-        if cands and df > 0:
+        if cands and df > 0 and options.modification_indices:
             c_codes = np.array([MATRIX_CODES[c[2]] for c in cands])
             c_rows = np.array([c[3] for c in cands])
             c_cols = np.array([c[4] for c in cands])
@@ -343,7 +343,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         base = adjusted_test(T_base, base_df, D_base, w, gamma)
         fit = _fit_indices(T, df, T_base, base_df, n, table.n_free, srmr, G)
         robust = _robust(test, base, df, base_df, n, G)
-        if modification and df > 0:
+        if modification and df > 0 and options.modification_indices:
             exo = exogenous_factors(spec)
             modification_rows = ordinal_score_tests(est, [candidate_entries(table, exo, g) for g in range(G)])
         for g in range(G):

@@ -61,6 +61,9 @@ def noncentrality_bound(chi_square: float, df: int, probability: float) -> float
     f = lambda lam: dist.ncx2_cdf(chi_square, df, lam) - probability if lam > 0 else dist.chi2_cdf(chi_square, df) - probability
     if f(0.0) < 0:
         return 0.0
+    direct = dist.ncx2_noncentrality(chi_square, df, probability)  # the inverse in closed numerical form
+    if np.isfinite(direct) and direct >= 0 and abs(f(direct)) < 1e-9:
+        return float(direct)
     hi = max(1.0, chi_square)
     while f(hi) > 0:
         hi *= 2.0

@@ -30,6 +30,10 @@ class SampleMoments:
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
     """The named columns as a float array; non-numeric entries are an error naming the cell."""
+    if names:
+        selected = frame[list(names)]
+        if all(pd.api.types.is_numeric_dtype(t) for t in selected.dtypes):  # already numbers: one conversion
+            return selected.to_numpy(dtype=float, na_value=np.nan)
     columns = []
     for name in names:
         column = frame[name]
@@ -139,6 +143,9 @@ def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20
     """Coverage of each variable and the most frequent missing-data patterns ('x' answered, '.' missing)."""
     observed = frame[list(names)].notna().to_numpy()
     coverage = {name: float(v) for name, v in zip(names, observed.mean(axis=0))}
+    if observed.all():
+        return {"coverage": coverage, "patterns": [{"pattern": "x" * len(names), "rows": int(len(observed))}],
+                "n_patterns": 1 if len(observed) else 0}
     patterns, counts = np.unique(observed, axis=0, return_counts=True)
     order = np.argsort(-counts, kind="stable")[:limit]
     return {

@@ -13,9 +13,11 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.linalg import cho_factor, cho_solve, solve_triangular
+from scipy.linalg import cho_factor, solve_triangular
+from scipy.linalg.lapack import dpotrf, dpotri
 
 from cfa_tool.model.implied import StructuredModel
+from cfa_tool.model.rank_two import basis_vectors, cross_term, entry_basis, gradient_and_information
 
 
 @dataclass(frozen=True)
@@ -113,54 +115,101 @@ class NormalLikelihood:
             if logdet is None:
                 raise ValueError("sample covariance matrix is not positive definite")
             self.logdet_S.append(logdet)
+        # per group: the entries that depend on theta, their rank-two description and their rows of J
+        self._active, self._basis, self._J = [], [], []
+        for g in range(len(groups)):
+            active = np.flatnonzero(model._J[g].any(axis=1))
+            self._active.append(active)
+            self._basis.append(entry_basis(model._codes[g][active], model._rows[g][active], model._cols[g][active],
+                                           model.p, model.m))
+            self._J.append(model._J[g][active])
+        self._memo: dict = {}
 
     def group_discrepancy(self, theta: np.ndarray, g: int) -> float:
-        mats = self.model.matrices(theta, g)
-        sigma = mats.implied_covariance()
-        try:
-            c = cho_factor(sigma, lower=True, check_finite=False)
-        except np.linalg.LinAlgError:
-            return np.inf
-        d = np.diag(c[0])
-        if np.any(d <= 0) or not np.all(np.isfinite(d)):
-            return np.inf
-        S = self.groups[g].covariance
-        value = 2.0 * float(np.sum(np.log(d))) + float(np.trace(cho_solve(c, S, check_finite=False))) - self.logdet_S[g] - self.p
-        if self.means:
-            dev = self.groups[g].mean - mats.implied_mean()
-            value += float(dev @ cho_solve(c, dev, check_finite=False))
-        return value
+        state = self._group_state(theta, g)
+        return np.inf if state is None else state[1].value
 
     def value(self, theta: np.ndarray) -> float:
         return float(sum(w * self.group_discrepancy(theta, g) for g, w in enumerate(self.weights)))
 
     def group_parts(self, theta: np.ndarray, g: int) -> NormalParts | None:
+        state = self._group_state(theta, g)
+        return None if state is None else state[1]
+
+    def _group_state(self, theta: np.ndarray, g: int):
+        """(matrices, parts) of group g at theta, or None when Sigma is not positive definite.
+
+        The last result per group is kept: a line search's trial value, the evaluation that
+        follows at the accepted point and the Hessian there all need the same factorisation."""
+        key = theta.tobytes()
+        memo = self._memo.get(g)
+        if memo is not None and memo[0] == key:
+            return memo[1]
+        state = self._compute_state(theta, g)
+        self._memo[g] = (key, state)
+        return state
+
+    def _compute_state(self, theta: np.ndarray, g: int):
         mats = self.model.matrices(theta, g)
         sigma = mats.implied_covariance()
-        try:
-            c = cho_factor(sigma, lower=True, check_finite=False)
-        except np.linalg.LinAlgError:
+        chol, info = dpotrf(sigma, lower=1, clean=1)
+        if info != 0 or not np.all(np.isfinite(chol)):
             return None
-        if np.any(np.diag(c[0]) <= 0) or not np.all(np.isfinite(c[0])):
+        diag = np.diag(chol)
+        if np.any(diag <= 0):
             return None
-        sigma_inv = cho_solve(c, np.eye(self.p), check_finite=False)
+        inverse, info = dpotri(chol, lower=1)
+        if info != 0:
+            return None
+        sigma_inv = inverse + inverse.T  # dpotri fills the lower triangle only
+        sigma_inv.flat[:: self.p + 1] *= 0.5
         S = self.groups[g].covariance
         target = S
         mean_gradient = None
-        value = 2.0 * float(np.sum(np.log(np.diag(c[0])))) + float(np.sum(sigma_inv * S)) - self.logdet_S[g] - self.p
+        value = 2.0 * float(np.sum(np.log(diag))) + float(np.sum(sigma_inv * S)) - self.logdet_S[g] - self.p
         if self.means:
             dev = self.groups[g].mean - mats.implied_mean()
             target = target + np.outer(dev, dev)
             mean_gradient = -2.0 * sigma_inv @ dev
             value += float(dev @ sigma_inv @ dev)
-        return NormalParts(c[0], sigma_inv, sigma_inv @ (sigma - target) @ sigma_inv, mean_gradient, value)
+        return mats, NormalParts(chol, sigma_inv, sigma_inv @ (sigma - target) @ sigma_inv, mean_gradient, value)
+
+    def _rank_two(self, theta: np.ndarray, g: int, with_information: bool = True):
+        """(mats, parts, gradient and information over the group's active entries, K, Q) or None."""
+        state = self._group_state(theta, g)
+        if state is None:
+            return None
+        mats, parts = state
+        V, a = basis_vectors(mats.L, mats.A, mats.P, mats.M if self.means else None)
+        g_e, H_e, K, Q = gradient_and_information(self._basis[g], V, a, parts.sigma_inv, parts.M, parts.mean_gradient,
+                                                  with_information)
+        return mats, parts, g_e, H_e, K, Q
 
     def evaluate(self, theta: np.ndarray) -> Evaluation | None:
         """Value, gradient and expected information at theta (None if some Sigma is not positive definite)."""
-        return evaluate_groups(self, theta)
+        return self._evaluate(theta, True)
+
+    def _evaluate(self, theta: np.ndarray, with_information: bool) -> Evaluation | None:
+        q = len(theta)
+        gradient = np.zeros(q)
+        information = np.zeros((q, q)) if with_information else None
+        value = 0.0
+        for g, w in enumerate(self.weights):
+            out = self._rank_two(theta, g, with_information)
+            if out is None:
+                return None
+            _, parts, g_e, H_e, _, _ = out
+            J = self._J[g]
+            value += w * parts.value
+            gradient += w * (g_e @ J)
+            if with_information:
+                information += w * (J.T @ H_e @ J)
+        if not np.isfinite(value):
+            return None
+        return Evaluation(value, gradient, information)
 
     def gradient(self, theta: np.ndarray) -> np.ndarray:
-        ev = evaluate_groups(self, theta, with_information=False, with_value=False)
+        ev = self._evaluate(theta, False)
         return np.full(len(theta), np.nan) if ev is None else ev.gradient
 
     def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
@@ -175,21 +224,18 @@ class NormalLikelihood:
         model = self.model
         if len(self.groups) != 1 or self.means:
             return None
-        mats = model.matrices(theta, 0)
+        out = self._rank_two(theta, 0)
+        if out is None:
+            return None
+        mats, parts, _, expected, K, Q = out
         if mats.B.any():
             return None
-        parts = self.group_parts(theta, 0)
-        if parts is None:
-            return None
-        d_sigma, d_mu = model.jacobian(theta, 0)
-        q, p, _ = d_sigma.shape
-        expected = parts.information(d_sigma, d_mu)
-        A = parts.sigma_inv @ d_sigma
-        B = parts.M @ d_sigma
-        cross = A.reshape(q, -1) @ B.transpose(0, 2, 1).reshape(q, -1).T
-        second = _second_derivative_contraction(mats, model._codes[0], model._rows[0], model._cols[0], parts.M)
-        J = model._J[0]
-        H = expected - cross - cross.T + J.T @ second @ J
+        active = self._active[0]
+        cross = cross_term(self._basis[0], K, Q)
+        second = _second_derivative_contraction(mats, model._codes[0][active], model._rows[0][active],
+                                                model._cols[0][active], parts.M)
+        J = self._J[0]
+        H = J.T @ (expected - cross - cross.T + second) @ J
         return 0.5 * (H + H.T)
 
 

@@ -56,8 +56,12 @@ def minimise(
         active = ((theta <= lower) & (g > 0)) | ((theta >= upper) & (g < 0))
         inactive = ~active
         step = np.zeros_like(theta)
+        free_all = not active.any()
         try:
-            step[inactive] = scaled_solve(current.information[np.ix_(inactive, inactive)], -g[inactive])
+            if free_all:
+                step = scaled_solve(current.information, -g)
+            else:
+                step[inactive] = scaled_solve(current.information[np.ix_(inactive, inactive)], -g[inactive])
         except np.linalg.LinAlgError:
             break
         if not np.all(np.isfinite(step)):
@@ -75,7 +79,7 @@ def minimise(
         if hessian is not None and hessian_usable is not False and decrement < CLOSED_FORM_NEWTON_BELOW:
             full = hessian(theta)
             hessian_usable = full is not None  # a likelihood without one says so once
-            observed = None if full is None else full[np.ix_(idx, idx)]
+            observed = None if full is None else (full if free_all else full[np.ix_(idx, idx)])
         if observed is None and gradient is not None and decrement < newton_below and slow:
             observed = difference_hessian(gradient, theta, central=False, base=g, indices=idx)
         if observed is not None:

@@ -39,7 +39,7 @@ def parameter_covariance(information: np.ndarray, n_obs: int) -> np.ndarray:
 
 def wald_inference(values: np.ndarray, J: np.ndarray, cov_theta: np.ndarray, level: float = 0.95) -> Inference:
     """SE, z, two-sided p and Wald interval for each entry; fixed entries get NaN."""
-    var = np.einsum("ek,kl,el->e", J, cov_theta, J)
+    var = np.sum((J @ cov_theta) * J, axis=1)
     free = np.any(J != 0, axis=1)
     se = np.where(free, np.sqrt(np.clip(var, 0.0, None)), np.nan)
     with np.errstate(divide="ignore", invalid="ignore"):

@@ -83,7 +83,15 @@ def decode_model_bytes(raw: bytes, source: str) -> str:
 
 
 def parse_model(text: str, source: str = "<model>") -> Spec:
-    """Parse model text into a checked :class:`Spec`."""
+    """Parse model text into a checked :class:`Spec`.
+
+    Specs are immutable, so the last few parses are remembered: loops that fit the same
+    model text many times (resampling, simulations) parse it once."""
+    return _parse_model(text, source)
+
+
+@lru_cache(maxsize=32)
+def _parse_model(text: str, source: str) -> Spec:
     from cfa_tool.language.checks import check_spec
 
     if "\x00" in text:

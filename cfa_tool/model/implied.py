@@ -78,27 +78,36 @@ class StructuredModel:
             self._offset.append(offset[sel])
         self.J, self.offset = J, offset
         self.groups = groups
+        self._layouts: list = [None] * self.n_groups
 
     # -- matrices
     def entry_values(self, theta: np.ndarray) -> np.ndarray:
         """Values of all table entries (all groups), in table order."""
         return self.offset + self.J @ theta
 
+    def _layout(self, group: int) -> tuple:
+        """Where each entry of a group goes in one flat buffer holding L, B, P, T, N, M (computed once)."""
+        if self._layouts[group] is None:
+            p, m = self.p, self.m
+            shapes = [(p, m), (m, m), (m, m), (p, p), (p,), (m,)]
+            starts = np.concatenate([[0], np.cumsum([int(np.prod(s)) for s in shapes])])
+            codes, rows, cols = self._codes[group], self._rows[group], self._cols[group]
+            in_moments = codes < 6  # thresholds enter no moment matrix
+            width = np.array([m, m, m, p, 1, 1, 0])[codes]
+            flat = starts[np.minimum(codes, 5)] + np.where(codes >= 4, rows, rows * width + cols)
+            mirror = in_moments & np.isin(codes, (2, 3)) & (rows != cols)
+            flat_mirror = starts[np.minimum(codes, 5)] + cols * width + rows
+            self._layouts[group] = (shapes, starts, np.flatnonzero(in_moments), flat[in_moments],
+                                    np.flatnonzero(mirror), flat_mirror[mirror])
+        return self._layouts[group]
+
     def matrices(self, theta: np.ndarray, group: int = 0) -> ModelMatrices:
         values = self._offset[group] + self._J[group] @ theta
-        codes, rows, cols = self._codes[group], self._rows[group], self._cols[group]
-        p, m = self.p, self.m
-        mats = [np.zeros((p, m)), np.zeros((m, m)), np.zeros((m, m)), np.zeros((p, p)), np.zeros(p), np.zeros(m)]
-        for code in range(4):
-            sel = codes == code
-            mats[code][rows[sel], cols[sel]] = values[sel]
-        for code in (2, 3):  # symmetric matrices stored as lower triangle
-            sel = (codes == code) & (rows != cols)
-            mats[code][cols[sel], rows[sel]] = values[sel]
-        for code in (4, 5):
-            sel = codes == code
-            mats[code][rows[sel]] = values[sel]
-        return ModelMatrices(*mats)
+        shapes, starts, take, at, take_mirror, at_mirror = self._layout(group)
+        buffer = np.zeros(starts[-1])
+        buffer[at] = values[take]
+        buffer[at_mirror] = values[take_mirror]
+        return ModelMatrices(*(buffer[starts[k]:starts[k + 1]].reshape(shape) for k, shape in enumerate(shapes)))
 
     def thresholds(self, theta: np.ndarray, group: int = 0) -> np.ndarray:
         """Thresholds of the ordinal items (matrix K), stacked item by item."""

@@ -115,10 +115,18 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
         # residual covariances and factor means start at zero
 
     J, offset = table.mapping()
-    theta, *_ = np.linalg.lstsq(J, target - offset, rcond=None)
+    theta = _least_squares(J, target - offset)
     given = ~np.isnan(table.start)
     theta[given] = table.start[given]
     return np.clip(theta, table.lower, table.upper)
+
+
+def _least_squares(J: np.ndarray, y: np.ndarray) -> np.ndarray:
+    """theta minimising |J theta - y|: by the normal equations (J'J is nearly diagonal here), else by SVD."""
+    try:
+        return np.linalg.solve(J.T @ J, J.T @ y)
+    except np.linalg.LinAlgError:
+        return np.linalg.lstsq(J, y, rcond=None)[0]
 
 
 def _principal_axis(R: np.ndarray) -> np.ndarray:

@@ -56,7 +56,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     """Fit every model to the same rows (complete on all their variables) and test each nested pair."""
     if len(models) < 2:
         raise OptionError("comparing needs at least two models")
-    fit_options = replace(make_options(options), normality=False)
+    fit_options = replace(make_options(options), diagnostics=False)
     specs = [load_spec(m) for m in models]
     names = _unique_names(specs)
     if isinstance(data, (str, Path)) and Path(data).suffix.lower() == SUMMARY_SUFFIX:

@@ -121,7 +121,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         raise OptionError(f"partial must be one of {', '.join(PARTIAL_CHOICES)}, not '{partial}'")
     if not 0 < alpha < 1:
         raise OptionError("alpha must be between 0 and 1")
-    fit_options = replace(make_options(options), normality=False)
+    fit_options = replace(make_options(options), diagnostics=False)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     if spec.invariant:
         raise OptionError("the invariance ladder sets 'invariant' itself; remove 'invariant' statements from the model file")

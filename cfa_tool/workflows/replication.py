@@ -67,7 +67,7 @@ def _moments(spec: Spec, frame: pd.DataFrame, source: str) -> SampleMoments:
 
 
 def replicate_moments(spec: Spec, calibration: SampleMoments, validation: SampleMoments, **options) -> Replication:
-    fit_options = replace(make_options(options), normality=False)
+    fit_options = replace(make_options(options), diagnostics=False)
     cal = fit_moments(spec, calibration, fit_options)
     if not cal.converged:
         raise EstimationError(f"the model did not converge in the calibration sample ({cal.message})")
