@@ -22,7 +22,6 @@ from dataclasses import asdict, dataclass
 
 import numpy as np
 from cfa_tool import distributions as dist
-from scipy.optimize import brentq
 
 
 @dataclass(frozen=True)
@@ -64,6 +63,8 @@ def noncentrality_bound(chi_square: float, df: int, probability: float) -> float
     direct = dist.ncx2_noncentrality(chi_square, df, probability)  # the inverse in closed numerical form
     if np.isfinite(direct) and direct >= 0 and abs(f(direct)) < 1e-9:
         return float(direct)
+    from scipy.optimize import brentq  # only when the direct inverse fails: scipy.optimize is slow to import
+
     hi = max(1.0, chi_square)
     while f(hi) > 0:
         hi *= 2.0

@@ -92,34 +92,18 @@ def constrained_entries(table: ParameterTable, kinds: tuple[str, ...], group: in
 def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]]) -> list[ModificationIndex]:
     """MI and EPC for each group's candidate entries (``candidates[g]``)."""
     table = model.table
-    q = len(theta)
-    H_tt = np.zeros((q, q))
-    parts = []
-    for g, weight in enumerate(likelihood.weights):
-        mats = model.matrices(theta, g)
-        group = likelihood.group_parts(theta, g)
-        t_sigma, t_mu = model.jacobian(theta, g)
-        H_tt += weight * group.information(t_sigma, t_mu)
-        cands = candidates[g]
-        if not cands:
-            continue
-        codes = np.array([MATRIX_CODES[c[2]] for c in cands])
-        rows = np.array([c[3] for c in cands])
-        cols = np.array([c[4] for c in cands])
-        fast = _rank_two_blocks(group, mats, t_sigma, codes, rows, cols) if not likelihood.means else None
-        if fast is not None:
-            d_all, H_all, h_all = fast
-            parts.append((g, cands, codes, rows, cols, mats, weight * d_all, weight * H_all, weight * h_all))
-            continue
-        H_ct, h_cc, d = [], [], []
-        for start in range(0, len(cands), CHUNK):  # bounded memory for models with thousands of candidates
-            sl = slice(start, start + CHUNK)
-            c_sigma, c_mu = entry_derivatives(mats, codes[sl], rows[sl], cols[sl])
-            H_ct.append(group.information(c_sigma, c_mu, t_sigma, t_mu))
-            h_cc.append(information_diagonal(group, c_sigma, c_mu))
-            d.append(group.gradient(c_sigma, c_mu))
-        parts.append((g, cands, codes, rows, cols, mats, weight * np.concatenate(d), weight * np.vstack(H_ct),
-                      weight * np.concatenate(h_cc)))
+    if hasattr(likelihood, "candidate_scores"):  # complete data: every block from rank-two derivatives
+        H_tt = likelihood.evaluate(theta).information
+        parts = []
+        for g, weight in enumerate(likelihood.weights):
+            cands = candidates[g]
+            if not cands:
+                continue
+            codes, rows, cols = _candidate_arrays(cands)
+            d, H_ct, h_cc = likelihood.candidate_scores(theta, g, codes, rows, cols)
+            parts.append((g, cands, codes, rows, cols, model.matrices(theta, g), weight * d, weight * H_ct, weight * h_cc))
+    else:
+        H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates)
     out: list[ModificationIndex] = []
     n = likelihood.n_total
     for g, cands, codes, rows, cols, mats, d, H_ct, h_cc in parts:
@@ -138,49 +122,34 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
     return out
 
 
-def _rank_two_blocks(parts, mats, t_sigma: np.ndarray, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray):
-    """Gradient, cross-information and own information of candidates without forming their derivatives.
+def _candidate_arrays(cands: list[Candidate]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    return (np.array([MATRIX_CODES[c[2]] for c in cands]), np.array([c[3] for c in cands]), np.array([c[4] for c in cands]))
 
-    Every candidate here (a cross-loading L_ij, a residual covariance T_ij, a factor covariance
-    P_ij) changes Sigma by a b' + b a' for vectors a, b (e_i and c_j; e_i and e_j; g_i and g_j),
-    so with S = Sigma^-1 and K_t = S D_t S:  d = 2 a'M b,  H_ct = 2 a'K_t b,
-    h = 2 ((a'S a)(b'S b) + (a'S b)^2).  Only for complete data without a mean structure
-    (None otherwise, and for other candidate kinds)."""
-    if not hasattr(parts, "sigma_inv") or np.any((codes == 1) | (codes > 3)):
-        return None
-    S, M = parts.sigma_inv, parts.M
-    G = mats.L @ mats.A
-    C = mats.A @ mats.P @ G.T  # (m, p): c_j = C[j]
-    K = S @ t_sigma @ S  # (q, p, p)
-    E = len(codes)
-    q = len(t_sigma)
-    d = np.empty(E)
-    H = np.empty((E, q))
-    h = np.empty(E)
-    sel = codes == 0  # L_ij: a = e_i, b = c_j
-    if sel.any():
-        i, j = rows[sel], cols[sel]
-        KC = K @ C.T  # (q, p, m)
-        H[sel] = 2.0 * KC[:, i, j].T
-        SC = C @ S  # (m, p)
-        d[sel] = 2.0 * (M @ C.T)[i, j]
-        h[sel] = 2.0 * (S[i, i] * np.einsum("jp,jp->j", SC, C)[j] + SC[j, i] ** 2)
-    sel = codes == 3  # T_ij: a = e_i, b = e_j
-    if sel.any():
-        i, j = rows[sel], cols[sel]
-        H[sel] = 2.0 * K[:, i, j].T
-        d[sel] = 2.0 * M[i, j]
-        h[sel] = 2.0 * (S[i, i] * S[j, j] + S[i, j] ** 2)
-    sel = codes == 2  # P_ij: a = g_i, b = g_j
-    if sel.any():
-        i, j = rows[sel], cols[sel]
-        GKG = G.T @ K @ G  # (q, m, m)
-        H[sel] = 2.0 * GKG[:, i, j].T
-        SG = S @ G
-        GSG = G.T @ SG
-        d[sel] = 2.0 * (G.T @ M @ G)[i, j]
-        h[sel] = 2.0 * (GSG[i, i] * GSG[j, j] + GSG[i, j] ** 2)
-    return d, H, h
+
+def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]]):
+    """The same blocks from full derivative matrices, in chunks (incomplete data)."""
+    q = len(theta)
+    H_tt = np.zeros((q, q))
+    parts = []
+    for g, weight in enumerate(likelihood.weights):
+        mats = model.matrices(theta, g)
+        group = likelihood.group_parts(theta, g)
+        t_sigma, t_mu = model.jacobian(theta, g)
+        H_tt += weight * group.information(t_sigma, t_mu)
+        cands = candidates[g]
+        if not cands:
+            continue
+        codes, rows, cols = _candidate_arrays(cands)
+        H_ct, h_cc, d = [], [], []
+        for start in range(0, len(cands), CHUNK):  # bounded memory for models with thousands of candidates
+            sl = slice(start, start + CHUNK)
+            c_sigma, c_mu = entry_derivatives(mats, codes[sl], rows[sl], cols[sl])
+            H_ct.append(group.information(c_sigma, c_mu, t_sigma, t_mu))
+            h_cc.append(information_diagonal(group, c_sigma, c_mu))
+            d.append(group.gradient(c_sigma, c_mu))
+        parts.append((g, cands, codes, rows, cols, mats, weight * np.concatenate(d), weight * np.vstack(H_ct),
+                      weight * np.concatenate(h_cc)))
+    return H_tt, parts
 
 
 def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood,

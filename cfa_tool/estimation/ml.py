@@ -17,7 +17,7 @@ from scipy.linalg import cho_factor, solve_triangular
 from scipy.linalg.lapack import dpotrf, dpotri
 
 from cfa_tool.model.implied import StructuredModel
-from cfa_tool.model.rank_two import basis_vectors, cross_term, entry_basis, gradient_and_information
+from cfa_tool.model.rank_two import basis_vectors, candidate_blocks, cross_term, entry_basis, gradient_and_information
 
 
 @dataclass(frozen=True)
@@ -188,6 +188,19 @@ class NormalLikelihood:
     def evaluate(self, theta: np.ndarray) -> Evaluation | None:
         """Value, gradient and expected information at theta (None if some Sigma is not positive definite)."""
         return self._evaluate(theta, True)
+
+    def candidate_scores(self, theta: np.ndarray, g: int, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray):
+        """(d, H_ct, h) of group g's candidate entries for score tests: gradient, cross-information with
+        theta and own information, all of this group's discrepancy (unweighted)."""
+        out = self._rank_two(theta, g, with_information=False)
+        if out is None:
+            return None
+        mats, parts, _, _, K, Q = out
+        V, a = basis_vectors(mats.L, mats.A, mats.P, mats.M if self.means else None)
+        Vm = V.T @ parts.mean_gradient if parts.mean_gradient is not None else None
+        cand = entry_basis(codes, rows, cols, self.model.p, self.model.m, with_pairs=False)
+        d, H_ce, h = candidate_blocks(cand, self._basis[g], K, Q, Vm, a)
+        return d, H_ce @ self._J[g], h
 
     def _evaluate(self, theta: np.ndarray, with_information: bool) -> Evaluation | None:
         q = len(theta)

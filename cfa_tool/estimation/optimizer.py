@@ -15,7 +15,6 @@ from dataclasses import dataclass
 from typing import Callable
 
 import numpy as np
-from scipy.optimize import minimize
 
 from cfa_tool.estimation.linalg import difference_hessian, scaled_solve
 from cfa_tool.estimation.ml import Evaluation
@@ -136,6 +135,8 @@ def newton_decrement(ev: Evaluation, theta: np.ndarray, lower: np.ndarray, upper
 
 
 def _quasi_newton(evaluate, value, theta, current, lower, upper, iterations, max_iterations) -> OptimizerResult:
+    from scipy.optimize import minimize  # the fallback is rare, and scipy.optimize is slow to import
+
     def fun(x):
         ev = evaluate(x)
         if ev is None:

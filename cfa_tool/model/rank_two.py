@@ -48,7 +48,9 @@ class EntryBasis:
     cc: np.ndarray  # outer(c, c)
 
 
-def entry_basis(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, p: int, m: int) -> EntryBasis:
+def entry_basis(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, p: int, m: int, with_pairs: bool = True) -> EntryBasis:
+    """The basis indices of each entry; ``with_pairs`` also lays out the E x E gathers that the
+    information matrix reads (not wanted for long candidate lists)."""
     E = len(codes)
     u = np.zeros(E, dtype=int)
     v = np.zeros(E, dtype=int)
@@ -76,10 +78,10 @@ def entry_basis(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, p: int, m
     nb = p + 2 * m
 
     def pairs(a, b):
-        return a[:, None] * nb + b[None, :]
+        return a[:, None] * nb + b[None, :] if with_pairs else np.zeros((0, 0), dtype=int)
 
     return EntryBasis(u, v, w, c, mean_from_a, mean_one, pairs(u, u), pairs(v, v), pairs(u, v), pairs(v, u), pairs(w, w),
-                      np.outer(c, c))
+                      np.outer(c, c) if with_pairs else np.zeros((0, 0)))
 
 
 def basis_vectors(L: np.ndarray, A: np.ndarray, P: np.ndarray, M: np.ndarray | None) -> tuple[np.ndarray, np.ndarray]:
@@ -124,3 +126,21 @@ def cross_term(basis: EntryBasis, K: np.ndarray, Q: np.ndarray) -> np.ndarray:
     k, q = K.ravel(), Q.ravel()
     Kuv = k[basis.uv]
     return basis.cc * (q[basis.vu] * Kuv + q[basis.vv] * k[basis.uu] + q[basis.uu] * k[basis.vv] + q[basis.uv] * Kuv.T)
+
+
+def candidate_blocks(cand: EntryBasis, model: EntryBasis, K: np.ndarray, Q: np.ndarray, Vm: np.ndarray | None,
+                     a: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """For candidate entries (not parameters of the model): their gradient d, their cross-information
+    with the model's entries H_ce and their own information h (the diagonal), as in the formulas above.
+    ``Vm`` is V' m (the mean part of the gradient), None without a mean structure."""
+    uc, vc, cc = cand.u, cand.v, cand.c
+    ue, ve, ce = model.u, model.v, model.c
+    d = 2.0 * cc * Q[uc, vc]
+    H = 2.0 * np.outer(cc, ce) * (K[np.ix_(uc, ue)] * K[np.ix_(vc, ve)] + K[np.ix_(uc, ve)] * K[np.ix_(vc, ue)])
+    h = 2.0 * cc**2 * (K[uc, uc] * K[vc, vc] + K[uc, vc] ** 2)
+    if Vm is not None:
+        sc, se = mean_coefficients(cand, a), mean_coefficients(model, a)
+        d = d + sc * Vm[cand.w]
+        H += 2.0 * np.outer(sc, se) * K[np.ix_(cand.w, model.w)]
+        h = h + 2.0 * sc**2 * K[cand.w, cand.w]
+    return d, H, h
