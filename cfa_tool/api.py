@@ -150,7 +150,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
     notes += group_notes
     result = fit_moments(spec, groups, fit_options, group_column=group)
-    summary = missing_summary(frame, spec.observed_names)
+    every_row_complete = (sum(m.n_obs for _, m in groups) == len(frame)
+                          and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
+    summary = None if every_row_complete else missing_summary(frame, spec.observed_names)
     if fit_options.missing == "full-information":
         dropped = sum(m.rows_dropped for _, m in groups)
         if dropped:
@@ -160,7 +162,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         "values": {k: v for k, v in loaded.value_labels.items() if k in spec.observed_names},
     }
     return replace(result, warnings=tuple(notes) + result.warnings,
-                   missing_data=summary if summary["n_patterns"] > 1 or not all(summary["coverage"].values()) else None,
+                   missing_data=summary if summary is not None and (summary["n_patterns"] > 1
+                                                                    or not all(summary["coverage"].values())) else None,
                    labels=labels if labels["variables"] or labels["values"] else None)
 
 

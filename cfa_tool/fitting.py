@@ -96,9 +96,7 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     """Build the model and minimise the ML discrepancy (no standard errors, no indices)."""
     multi = len(groups) > 1 or groups[0][0] is not None
     fiml = options.missing == "full-information"
-    table = build_parameter_table(spec, tuple(label for label, _ in groups) if multi else None, mean_structure=fiml)
-    check_counting_rule(spec, table)
-    model = StructuredModel(table)
+    table, model = model_structure(spec, tuple(label for label, _ in groups) if multi else None, fiml)
     moments = [ordered_moments(m, table.observed) for _, m in groups]
     if fiml:
         patterns = [pattern_data(gm.rows) for gm in moments]
@@ -113,6 +111,16 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     opt = minimise(likelihood.evaluate, likelihood.value, start, table.lower, table.upper, options.max_iterations,
                    gradient=likelihood.gradient, hessian=getattr(likelihood, "observed_hessian", None))
     return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, opt.message)
+
+
+@lru_cache(maxsize=16)
+def model_structure(spec: Spec, groups: tuple[str, ...] | None, mean_structure: bool) -> tuple[ParameterTable, StructuredModel]:
+    """The parameter table (checked by the counting rule) and its index arrays.  Both are fixed once
+    built and depend only on their arguments, so refits of one model (resampling, simulations,
+    loops over data sets) build them once."""
+    table = build_parameter_table(spec, groups, mean_structure=mean_structure)
+    check_counting_rule(spec, table)
+    return table, StructuredModel(table)
 
 
 def fit_moments(spec: Spec, moments: SampleMoments | list[tuple[str | None, SampleMoments]],

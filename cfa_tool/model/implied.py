@@ -78,7 +78,7 @@ class StructuredModel:
             self._offset.append(offset[sel])
         self.J, self.offset = J, offset
         self.groups = groups
-        self._layouts: list = [None] * self.n_groups
+        self._layouts = [self._layout(g) for g in range(self.n_groups)]
 
     # -- matrices
     def entry_values(self, theta: np.ndarray) -> np.ndarray:
@@ -86,24 +86,21 @@ class StructuredModel:
         return self.offset + self.J @ theta
 
     def _layout(self, group: int) -> tuple:
-        """Where each entry of a group goes in one flat buffer holding L, B, P, T, N, M (computed once)."""
-        if self._layouts[group] is None:
-            p, m = self.p, self.m
-            shapes = [(p, m), (m, m), (m, m), (p, p), (p,), (m,)]
-            starts = np.concatenate([[0], np.cumsum([int(np.prod(s)) for s in shapes])])
-            codes, rows, cols = self._codes[group], self._rows[group], self._cols[group]
-            in_moments = codes < 6  # thresholds enter no moment matrix
-            width = np.array([m, m, m, p, 1, 1, 0])[codes]
-            flat = starts[np.minimum(codes, 5)] + np.where(codes >= 4, rows, rows * width + cols)
-            mirror = in_moments & np.isin(codes, (2, 3)) & (rows != cols)
-            flat_mirror = starts[np.minimum(codes, 5)] + cols * width + rows
-            self._layouts[group] = (shapes, starts, np.flatnonzero(in_moments), flat[in_moments],
-                                    np.flatnonzero(mirror), flat_mirror[mirror])
-        return self._layouts[group]
+        """Where each entry of a group goes in one flat buffer holding L, B, P, T, N, M."""
+        p, m = self.p, self.m
+        shapes = [(p, m), (m, m), (m, m), (p, p), (p,), (m,)]
+        starts = np.concatenate([[0], np.cumsum([int(np.prod(s)) for s in shapes])])
+        codes, rows, cols = self._codes[group], self._rows[group], self._cols[group]
+        in_moments = codes < 6  # thresholds enter no moment matrix
+        width = np.array([m, m, m, p, 1, 1, 0])[codes]
+        flat = starts[np.minimum(codes, 5)] + np.where(codes >= 4, rows, rows * width + cols)
+        mirror = in_moments & np.isin(codes, (2, 3)) & (rows != cols)
+        flat_mirror = starts[np.minimum(codes, 5)] + cols * width + rows
+        return (shapes, starts, np.flatnonzero(in_moments), flat[in_moments], np.flatnonzero(mirror), flat_mirror[mirror])
 
     def matrices(self, theta: np.ndarray, group: int = 0) -> ModelMatrices:
         values = self._offset[group] + self._J[group] @ theta
-        shapes, starts, take, at, take_mirror, at_mirror = self._layout(group)
+        shapes, starts, take, at, take_mirror, at_mirror = self._layouts[group]
         buffer = np.zeros(starts[-1])
         buffer[at] = values[take]
         buffer[at_mirror] = values[take_mirror]

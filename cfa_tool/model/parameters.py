@@ -377,6 +377,8 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                 group=key[0],
             )
         )
+    for array in (start, lower, upper):
+        array.setflags(write=False)  # tables are shared between fits of the same model
     return ParameterTable(observed, latent, tuple(parameters), n_free, start, lower, upper, tuple(free_labels),
                           group_labels, means, multi)
 
