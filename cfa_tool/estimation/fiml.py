@@ -78,6 +78,7 @@ class MissingDataLikelihood:
         self.p = model.p
         self.means = True
         self.saturated_value = [pattern_objective(d, mu, sigma) for d, (mu, sigma) in zip(patterns, saturated)]
+        self._row_blocks = [_row_blocks(d.rows) for d in patterns]  # fixed by the data: computed once
 
     def group_discrepancy(self, theta: np.ndarray, g: int) -> float:
         mats = self.model.matrices(theta, g)
@@ -123,24 +124,32 @@ class MissingDataLikelihood:
             sigma = mats.implied_covariance()
             precision = np.linalg.inv(sigma)
             rows = data.rows
-            observed = ~np.isnan(rows)
+            observed, together, blocks = self._row_blocks[g]
             n = data.n_obs
             resid = np.where(observed, rows - mats.implied_mean(), 0.0)
             v = resid @ precision
             u = v.copy()
-            mean_A = precision * (observed.T.astype(float) @ observed.astype(float)) / n
-            for which, miss in _missing_groups(observed):
-                block = precision[miss[:, :, None], miss[:, None, :]]
-                cond = np.linalg.inv(block)
-                side = precision[miss] * observed[which][:, None, :]  # L_m. restricted to observed columns
-                z = np.einsum("rkj,rj->rk", cond, v[which[:, None], miss])
-                u[which] -= np.einsum("rk,rkp->rp", z, side)
-                mean_A -= np.einsum("rkp,rkl,rlq->pq", side, cond, side, optimize=True) / n
+            mean_A = precision * together / n
+            for which, miss, seen in blocks:
+                cond = np.linalg.inv(precision[miss[:, :, None], miss[:, None, :]])  # (L_mm)^-1 per row
+                side = precision[miss] * seen  # L_m. restricted to observed columns
+                z = (cond @ v[which[:, None], miss][:, :, None])[:, :, 0]
+                u[which] -= (z[:, None, :] @ side)[:, 0, :]
+                mean_A -= (side.transpose(0, 2, 1) @ (cond @ side)).sum(axis=0) / n
             u = np.where(observed, u, 0.0)
             M = mean_A - u.T @ u / n
             d_sigma, d_mu = self.model.jacobian(theta, g)
             total += w_group * (d_sigma.reshape(q, -1) @ M.ravel() - 2.0 * d_mu @ u.mean(axis=0))
         return total
+
+
+def _row_blocks(rows: np.ndarray):
+    """(observed mask, co-observation counts, [(rows, their missing columns, observed mask of those rows)])
+    for each number of missing answers above zero."""
+    observed = ~np.isnan(rows)
+    together = observed.T.astype(float) @ observed.astype(float)
+    blocks = [(which, miss, observed[which][:, None, :]) for which, miss in _missing_groups(observed)]
+    return observed, together, blocks
 
 
 def _missing_groups(observed: np.ndarray):
