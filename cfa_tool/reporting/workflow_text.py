@@ -54,13 +54,22 @@ def render_invariance(result, console: Console) -> None:
     table = _table("The ladder", [("Level", "left"), ("Chi-square", "right"), ("df", "right"), ("p", "right"),
                                   ("CFI", "right"), ("RMSEA", "right"), ("Difference", "right"), ("df", "right"),
                                   ("p", "right"), ("Change in CFI", "right"), ("Change in RMSEA", "right"), ("Holds", "left")])
+    adjusted = any(step.result.robust is not None for step in result.steps)
     for step in result.steps:
-        fit = step.result.fit
-        cells = ([f"{fit.chi_square:.3f}", str(fit.df), p_value(fit.p_value), unit(fit.cfi), unit(fit.rmsea)]
-                 if fit is not None else ["did not converge", "", "", "", ""])
+        fit, robust = step.result.fit, step.result.robust
+        if fit is None:
+            cells = ["did not converge", "", "", "", ""]
+        elif adjusted and robust is not None:  # ordinal items: the adjusted statistic and robust indices
+            cells = [f"{robust.chi_square_scaled:.3f}", str(robust.df), p_value(robust.p_value_scaled), unit(robust.cfi_robust),
+                     unit(robust.rmsea_robust)]
+        else:
+            cells = [f"{fit.chi_square:.3f}", str(fit.df), p_value(fit.p_value), unit(fit.cfi), unit(fit.rmsea)]
         diff = _difference_cells(step.versus_previous) if step.versus_previous is not None else [""] * 5
         table.add_row(step.level, *cells, *diff, "yes" if step.holds else "no")
     console.print(table)
+    if adjusted:
+        console.print("Ordinal items: chi-square, CFI and RMSEA come from the scale-shifted adjusted statistic, and each "
+                      "difference test is adjusted in the same way (Asparouhov & Muthen 2006).")
     console.print(f"A step holds when its chi-square difference test has p >= {unit(result.alpha, 2)}. Common-practice guides: "
                   f"change in CFI no lower than -.01 (Cheung & Rensvold 2002), change in RMSEA below .015 (Chen 2007).")
     if result.freed:

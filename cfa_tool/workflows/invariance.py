@@ -77,11 +77,12 @@ class InvarianceStep:
         if self.versus_previous is not None:
             t = self.versus_previous
             vs = clean({"chi_square_difference": t.chi_square_difference, "df_difference": t.df_difference,
-                        "p_value": t.p_value, "delta_cfi": t.delta_cfi, "delta_rmsea": t.delta_rmsea})
+                        "p_value": t.p_value, "method": t.method, "delta_cfi": t.delta_cfi, "delta_rmsea": t.delta_rmsea})
         return {
             "level": self.level,
             "converged": self.result.converged,
             "fit": clean(self.result.fit.to_dict()) if self.result.fit is not None else None,
+            "robust": clean(self.result.robust.to_dict()) if self.result.robust is not None else None,
             "versus_previous": vs,
             "holds": self.holds,
             "constraint_tests": [clean(c.to_dict()) for c in self.culprits[:10]],
