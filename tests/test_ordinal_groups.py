@@ -179,3 +179,28 @@ def test_command_line_invariance_with_ordinal_items(tmp_path):
     assert main(["fit", str(model), "--data", str(data), "--group", "site", "--ordinal", "all", "--json", str(fitted)]) == 0
     kinds = {e["kind"] for e in json.loads(fitted.read_text())["estimates"]}
     assert "threshold" in kinds
+
+
+def test_adjusted_difference_tests_hold_their_level_under_invariance():
+    # under an invariant population the p-values of a valid difference test are uniform: mean 1/2 and
+    # about 5% below .05 (60 replications: the mean has a standard error of about .04)
+    from dataclasses import replace
+
+    from cfa_tool.api import ordinal_groups
+    from cfa_tool.fitting import FitOptions
+    from cfa_tool.language import parse_model
+    from cfa_tool.ordinal_fitting import estimate_ordinal_groups, ordinal_difference
+
+    spec = parse_model(MODEL)
+    p_values = {"thresholds": [], "metric": []}
+    for rep in range(60):
+        data = _two_groups(_draw(400, 1000 + rep), _draw(400, 2000 + rep, mean=0.3, sd=1.1))
+        groups, _ = ordinal_groups(spec, data, "data", "site", None)
+        fits = [estimate_ordinal_groups(replace(spec, invariant=classes), groups, FitOptions())
+                for classes in ((), ("thresholds",), ("thresholds", "loadings"))]
+        p_values["thresholds"].append(ordinal_difference(fits[1], fits[0]).scale_shifted_p)
+        p_values["metric"].append(ordinal_difference(fits[2], fits[1]).scale_shifted_p)
+    for step, values in p_values.items():
+        values = np.asarray(values)
+        assert 0.38 < values.mean() < 0.62, step
+        assert (values < 0.05).mean() <= 0.12, step
