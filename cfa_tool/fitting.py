@@ -229,31 +229,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             check_information_rank(evaluation.information, table.free_labels)
         warnings.append(f"the estimation did not converge ({est.message}); no result from it should be interpreted")
 
-    nan = float("nan")
-    estimates = []
-    for e, par in enumerate(table.parameters):
-        if inference is not None:
-            se, z, p = inference.se[e], inference.z[e], inference.p_value[e]
-            ci = (inference.ci_low[e], inference.ci_high[e]) if par.free else (nan, nan)
-        else:
-            se = z = p = nan
-            ci = (nan, nan)
-        estimates.append(
-            EstimateRow(
-                kind=par.kind,
-                variables=par.variables,
-                free=par.free,
-                estimate=float(values[e]),
-                se=float(se),
-                z=float(z),
-                p_value=float(p),
-                ci95=(float(ci[0]), float(ci[1])),
-                standardized=float(std_all[e]),
-                standardized_latent=float(std_lv[e]),
-                origin=par.origin,
-                group=table.groups[par.group] if multi else None,
-            )
-        )
+    estimates = estimate_rows(table, values, inference, std_all, std_lv)
 
     group_results = []
     for g, ((label, m), gm) in enumerate(zip(groups, likelihood.groups)):
@@ -300,7 +276,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         latent=table.latent,
         fit=fit,
         robust=robust,
-        estimates=tuple(estimates),
+        estimates=estimates,
         modification_indices=tuple(mis),
         groups=tuple(group_results),
         group_column=group_column,
@@ -309,6 +285,32 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         mi_top=options.mi_top,
         theta=theta,
     )
+
+
+def estimate_rows(table: ParameterTable, values: np.ndarray, inference, std_all: np.ndarray, std_lv: np.ndarray,
+                  derived: frozenset = frozenset()) -> tuple[EstimateRow, ...]:
+    """One row per matrix entry; fixed entries (and ``derived`` ones, which follow from others) have no SE.
+    Arrays are turned into lists first: indexing numpy arrays element by element is slow."""
+    nan = float("nan")
+    n = len(values)
+    if inference is not None:
+        se, z, p = inference.se.tolist(), inference.z.tolist(), inference.p_value.tolist()
+        low, high = inference.ci_low.tolist(), inference.ci_high.tolist()
+    else:
+        se = z = p = low = high = [nan] * n
+    values_l, all_l, lv_l = values.tolist(), std_all.tolist(), std_lv.tolist()
+    multi = table.multigroup
+    rows = []
+    for e, par in enumerate(table.parameters):
+        free = par.free and e not in derived
+        if e in derived:
+            se_e = z_e = p_e = nan
+        else:
+            se_e, z_e, p_e = se[e], z[e], p[e]
+        ci = (low[e], high[e]) if free else (nan, nan)
+        rows.append(EstimateRow(par.kind, par.variables, free, values_l[e], se_e, z_e, p_e, ci, all_l[e], lv_l[e],
+                                "derived" if e in derived else par.origin, table.groups[par.group] if multi else None))
+    return tuple(rows)
 
 
 def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool) -> dict:

@@ -33,7 +33,8 @@ from cfa_tool.language.spec import ParameterRef, Spec, ValueSetting
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable, build_parameter_table
 from cfa_tool.model.starts import starting_values
-from cfa_tool.results import DataSummary, EstimateRow, FitResult, GroupResult
+from cfa_tool.fitting import estimate_rows
+from cfa_tool.results import DataSummary, FitResult, GroupResult
 
 ORDINAL_METHODS = ("diagonally-weighted", "unweighted")
 ORDINAL_NOTE = ("With ordinal items the fit indices come from the scale-shifted adjusted statistic; they were developed for "
@@ -160,19 +161,9 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
         warnings.append(ORDINAL_NOTE)
     else:
         warnings.append(f"the estimation did not converge ({opt.message}); no result from it should be interpreted")
-    nan = float("nan")
-    estimates = []
-    for e, par in enumerate(table.parameters):
-        derived = par.kind == "residual_variance" and par.variables[0] in derived_items
-        if inference is not None and not derived:
-            se, z, pv = inference.se[e], inference.z[e], inference.p_value[e]
-            ci = (inference.ci_low[e], inference.ci_high[e]) if par.free else (nan, nan)
-        else:
-            se = z = pv = nan
-            ci = (nan, nan)
-        estimates.append(EstimateRow(par.kind, par.variables, par.free and not derived, float(values[e]), float(se), float(z),
-                                     float(pv), (float(ci[0]), float(ci[1])), float(std_all[e]), float(std_lv[e]),
-                                     "derived" if derived else par.origin))
+    derived = frozenset(e for e, par in enumerate(table.parameters)
+                        if par.kind == "residual_variance" and par.variables[0] in derived_items)
+    estimates = estimate_rows(table, values, inference, std_all, std_lv, derived)
     factors, htmt = reliability(final, table.observed, table.latent, R)
     summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
                           tuple(float(moments.means[k]) for k in order), tuple(float(moments.sds[k]) for k in order))
@@ -188,7 +179,7 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
                   + (", with polyserial correlations for continuous items" if moments.continuous else "")
                   + "), robust standard errors",
         converged=opt.converged, iterations=opt.iterations, message=opt.message, n_obs=n, data=summary,
-        observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=tuple(estimates),
+        observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
         modification_indices=tuple(modification), groups=(group,), warnings=tuple(warnings), mi_threshold=options.mi_threshold,
         mi_top=options.mi_top, theta=theta,
     )
@@ -352,18 +343,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         warnings.append(ORDINAL_NOTE)
     else:
         warnings.append(f"the estimation did not converge ({est.message}); no result from it should be interpreted")
-    nan = float("nan")
-    estimates = []
-    for e_, par in enumerate(table.parameters):
-        if inference is not None:
-            se, z, pv = inference.se[e_], inference.z[e_], inference.p_value[e_]
-            ci = (inference.ci_low[e_], inference.ci_high[e_]) if par.free else (nan, nan)
-        else:
-            se = z = pv = nan
-            ci = (nan, nan)
-        estimates.append(EstimateRow(par.kind, par.variables, par.free, float(values[e_]), float(se), float(z), float(pv),
-                                     (float(ci[0]), float(ci[1])), float(std_all[e_]), float(std_lv[e_]), par.origin,
-                                     table.groups[par.group]))
+    estimates = estimate_rows(table, values, inference, std_all, std_lv)
     group_results = []
     for g, (lab, m) in enumerate(groups):
         mg = moments[g]
@@ -385,7 +365,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         estimator=f"{label} least squares on thresholds and polychoric correlations (ordinal items, {G} groups), "
                   f"robust standard errors",
         converged=est.converged, iterations=est.iterations, message=est.message, n_obs=n, data=total,
-        observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=tuple(estimates),
+        observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
         modification_indices=tuple(modification_rows), groups=tuple(group_results), group_column=group_column,
         warnings=tuple(warnings), mi_threshold=options.mi_threshold, mi_top=options.mi_top, theta=theta,
     )

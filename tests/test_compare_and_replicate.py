@@ -94,7 +94,8 @@ def test_cli_compare_invariance_replicate_json(tmp_path):
     assert proc.returncode == 0, proc.stderr
     out = json.loads(proc.stdout)
     assert [s["level"] for s in out["steps"]] == ["configural", "metric", "scalar", "strict"]
-    assert set(out["steps"][1]["versus_previous"]) == {"chi_square_difference", "df_difference", "p_value", "delta_cfi", "delta_rmsea"}
+    assert set(out["steps"][1]["versus_previous"]) == {"chi_square_difference", "df_difference", "p_value", "method",
+                                                      "delta_cfi", "delta_rmsea"}
     assert "freed" in out
 
     proc = run("replicate", str(MODEL), "--data", str(DATA), "--seed", "3", "--json", "-")

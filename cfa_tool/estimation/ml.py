@@ -115,14 +115,7 @@ class NormalLikelihood:
             if logdet is None:
                 raise ValueError("sample covariance matrix is not positive definite")
             self.logdet_S.append(logdet)
-        # per group: the entries that depend on theta, their rank-two description and their rows of J
-        self._active, self._basis, self._J = [], [], []
-        for g in range(len(groups)):
-            active = np.flatnonzero(model._J[g].any(axis=1))
-            self._active.append(active)
-            self._basis.append(entry_basis(model._codes[g][active], model._rows[g][active], model._cols[g][active],
-                                           model.p, model.m))
-            self._J.append(model._J[g][active])
+        self._active, self._basis, self._J = model.active, model.bases, model.active_J
         self._memo: dict = {}
 
     def group_discrepancy(self, theta: np.ndarray, g: int) -> float:

@@ -19,6 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.model.parameters import ParameterTable
+from cfa_tool.model.rank_two import entry_basis
 
 
 @dataclass(frozen=True)
@@ -79,6 +80,13 @@ class StructuredModel:
         self.J, self.offset = J, offset
         self.groups = groups
         self._layouts = [self._layout(g) for g in range(self.n_groups)]
+        # per group: the entries that depend on theta, their rank-two description and their rows of J
+        self.active, self.bases, self.active_J = [], [], []
+        for g in range(self.n_groups):
+            active = np.flatnonzero(self._J[g].any(axis=1))
+            self.active.append(active)
+            self.bases.append(entry_basis(self._codes[g][active], self._rows[g][active], self._cols[g][active], self.p, self.m))
+            self.active_J.append(self._J[g][active])
 
     # -- matrices
     def entry_values(self, theta: np.ndarray) -> np.ndarray:
