@@ -14,7 +14,7 @@ from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file, summary_moments
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.fitting import FitOptions, fit_moments
 from cfa_tool.language.parser import parse_model, read_model_file
 from cfa_tool.language.spec import Spec
@@ -188,6 +188,17 @@ def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: se
     return result
 
 
+def continuous_only(spec: Spec, command: str) -> Spec:
+    """Workflows that fit by normal-theory ML refuse a model that declares ordinal items rather
+    than silently treating them as continuous."""
+    if spec.ordinal:
+        name = spec.ordinal[0]
+        raise ModelError(f"'{command}' treats every item as continuous, but the model declares '{name.text}' ordinal; "
+                         f"remove the 'ordinal' statement to analyse the items as continuous ('fit' and 'invariance' "
+                         f"handle ordinal items)", name.location, spec.source_line(name.location))
+    return spec
+
+
 def check_ordinal_options(fit_options) -> None:
     if fit_options.missing != "listwise" or fit_options.test != "normal":
         raise OptionError("ordinal items are fitted with listwise deletion and their own adjusted test; full-information "
@@ -271,6 +282,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     from cfa_tool.workflows.bootstrap import bootstrap_fit
 
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
+    continuous_only(spec, "bootstrap")
     moments = sample_moments(frame, spec.observed_names, source)
     result = fit_moments(spec, moments, FitOptions())
     order = [moments.names.index(n) for n in result.observed]
@@ -285,5 +297,6 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     from cfa_tool.workflows.cutoffs import fit_cutoffs
 
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
+    continuous_only(spec, "cutoffs")
     result = fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions())
     return result, fit_cutoffs(spec, result, replications, seed, workers, cluster, progress)

@@ -104,3 +104,14 @@ def test_starting_values_far_off_still_converge(corpus, capsys):
     import json
 
     assert json.loads(out)["fit"]["chi_square"] == pytest.approx(json.loads(good)["fit"]["chi_square"], rel=1e-6)
+
+
+@pytest.mark.parametrize("command", [["bootstrap", "models/ordinal_in_compare.cfa", "--replications", "10"],
+                                     ["compare", "models/good.cfa", "models/ordinal_in_compare.cfa"],
+                                     ["replicate", "models/ordinal_in_compare.cfa", "--calibration", "data/good.csv",
+                                      "--validation", "data/good.csv"]])
+def test_workflows_for_continuous_items_refuse_ordinal_declarations(command, corpus, capsys):
+    before = _snapshot(corpus)
+    argv = command + (["--data", "data/good.csv"] if command[0] != "replicate" else [])
+    code, _, err = _run(argv, capsys)
+    _check(code, err, 2, ["ordinal_in_compare.cfa:3:9:", f"'{command[0]}' treats every item as continuous"], before, corpus)

@@ -7,7 +7,7 @@ from pathlib import Path
 
 import pandas as pd
 
-from cfa_tool.api import load_spec, make_options, moments_for, read_inputs_with_notes
+from cfa_tool.api import continuous_only, load_spec, make_options, moments_for, read_inputs_with_notes
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file
 from cfa_tool.errors import OptionError
@@ -57,7 +57,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     if len(models) < 2:
         raise OptionError("comparing needs at least two models")
     fit_options = replace(make_options(options), diagnostics=False)
-    specs = [load_spec(m) for m in models]
+    specs = [continuous_only(load_spec(m), "compare") for m in models]
     names = _unique_names(specs)
     if isinstance(data, (str, Path)) and Path(data).suffix.lower() == SUMMARY_SUFFIX:
         return _compare_summary(specs, names, data, fit_options, group)

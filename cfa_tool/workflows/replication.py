@@ -18,7 +18,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.api import load_frame, load_spec, make_options
+from cfa_tool.api import continuous_only, load_frame, load_spec, make_options
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, sample_moments
@@ -89,7 +89,7 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
               **options) -> Replication:
     """Calibrate on one data set, validate on another."""
-    spec = load_spec(model)
+    spec = continuous_only(load_spec(model), "replicate")
     cal_frame, cal_source = load_frame(calibration)
     val_frame, val_source = load_frame(validation)
     return replicate_moments(spec, _moments(spec, cal_frame, cal_source), _moments(spec, val_frame, val_source), **options)
@@ -97,7 +97,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
 
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1, **options) -> tuple[Replication, Replication]:
     """Random halves A and B (seeded): calibrate on A and validate on B, then the reverse."""
-    spec = load_spec(model)
+    spec = continuous_only(load_spec(model), "replicate")
     frame, source = load_frame(data)
     check_columns(spec, [str(c) for c in frame.columns], source)
     complete = frame.dropna(subset=list(spec.observed_names))
