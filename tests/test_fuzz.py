@@ -122,3 +122,44 @@ def test_fits_of_random_data(model, frame, options):
         cfa_tool.fit(model, frame, **options)
     except CfaError:
         pass
+
+
+@st.composite
+def ordinal_frames(draw):
+    """Small-integer answers (2 to 5 categories), a group column of one to three labels, and a few odd cells."""
+    n = draw(st.integers(0, 80))
+    rng = np.random.default_rng(draw(st.integers(0, 2**16)))
+    k = draw(st.integers(2, 5))
+    latent = rng.normal(size=(n, 1))
+    answers = np.clip(np.round(latent + rng.normal(size=(n, 6)) + (k + 1) / 2), 1, k).astype(int)
+    frame = pd.DataFrame(answers, columns=["q1", "q2", "q3", "q4", "q5", "q6"]).astype(object)
+    frame["site"] = rng.choice(["a", "b", "c"][: draw(st.integers(1, 3))], size=n) if n else []
+    for _ in range(draw(st.integers(0, 3))):
+        if n:
+            frame.iat[draw(st.integers(0, n - 1)), draw(st.integers(0, 5))] = draw(st.sampled_from([np.nan, "x", 7, 1]))
+    return frame
+
+
+ordinal_models = st.sampled_from([
+    "factor f: q1, q2, q3\nfactor g: q4, q5, q6\nordinal q1..q6\n",
+    "factor f: q1..q6\nordinal q1..q6\ninvariant thresholds, loadings\n",
+    "factor f: q1, q2, q3\nfactor g: q4, q5, q6\nordinal q1..q6\ninvariant thresholds, loadings, intercepts\n"
+    "noninvariant threshold(q2)\nscale latent by variance\n",
+])
+
+
+@settings(max_examples=FIT_EXAMPLES, **SETTINGS)
+@given(ordinal_models, ordinal_frames(), st.sampled_from(["fit", "fit by group", "ladder"]))
+def test_ordinal_fits_of_random_data(model, frame, how):
+    from cfa_tool.workflows.invariance import invariance
+
+    try:
+        if how == "fit":
+            cfa_tool.fit(model, frame)
+        elif how == "fit by group":
+            cfa_tool.fit(model, frame, group="site")
+        else:
+            invariance(model.replace("invariant", "# invariant").replace("noninvariant", "# noninvariant"), frame, "site",
+                       partial="auto")
+    except CfaError:
+        pass
