@@ -42,6 +42,7 @@ ORDINAL_NOTE = ("With ordinal items the fit indices come from the scale-shifted 
 GROUPS_NOTE = ("Ordinal items in several groups: the latent responses have intercept 0 and residual variance 1 in the first "
                "group (and wherever an item's thresholds differ across groups); loadings and residual variances are in "
                "that metric; standardized values compare across groups (identification after Wu & Estabrook 2016).")
+ORDINAL_DIFFERENCE = "scale-shifted adjusted difference (Asparouhov & Muthen 2006)"
 MI_NOTE = "modification indices for ordinal items are robust score tests (Satorra 1989)"
 
 

@@ -107,7 +107,6 @@ def test_starting_values_far_off_still_converge(corpus, capsys):
 
 
 @pytest.mark.parametrize("command", [["bootstrap", "models/ordinal_in_compare.cfa", "--replications", "10"],
-                                     ["compare", "models/good.cfa", "models/ordinal_in_compare.cfa"],
                                      ["replicate", "models/ordinal_in_compare.cfa", "--calibration", "data/good.csv",
                                       "--validation", "data/good.csv"]])
 def test_workflows_for_continuous_items_refuse_ordinal_declarations(command, corpus, capsys):

@@ -205,3 +205,54 @@ def test_adjusted_difference_tests_hold_their_level_under_invariance():
         values = np.asarray(values)
         assert 0.38 < values.mean() < 0.62, step
         assert (values < 0.05).mean() <= 0.12, step
+
+
+TWO = 'name "two"\nfactor f1: q1..q4\nfactor f2: q5..q8\nordinal q1..q8\n'
+ONE = 'name "one"\nfactor f: q1..q8\nordinal q1..q8\n'
+ORTHOGONAL = 'name "orthogonal"\nfactor f2: q5..q8\nfactor f1: q1..q4\nuncorrelated f1, f2\nordinal q1..q8\n'
+
+
+def test_compare_ordinal_models():
+    from cfa_tool.workflows.compare import compare
+
+    data = _draw(1500, 3, per_factor=4)
+    comparison = compare([TWO, ONE, ORTHOGONAL], data)
+    # each model's fit is the one 'fit' gives (one-group thresholds-and-correlations fit = the single-group estimator)
+    for text, result in zip((TWO, ONE, ORTHOGONAL), comparison.results):
+        alone = cfa_tool.fit(text, data)
+        assert result.fit.chi_square == pytest.approx(alone.fit.chi_square, rel=1e-6)
+        assert result.robust.chi_square_scaled == pytest.approx(alone.robust.chi_square_scaled, rel=1e-6)
+    tests = {(t.restricted, t.general): t for t in comparison.tests}
+    assert set(tests) == {("one", "two"), ("orthogonal", "two")}  # the second lists its items in another order
+    assert all(t.df_difference == 1 and t.p_value < 1e-10 and "Asparouhov" in t.method for t in tests.values())
+    assert [(n.first, n.second) for n in comparison.not_nested] == [("one", "orthogonal")]
+    with pytest.raises(OptionError, match="same items"):
+        compare([TWO, 'factor f: q1..q7\nordinal q1..q7\n'], data)
+
+
+def test_compare_ordinal_difference_holds_its_level():
+    from cfa_tool.workflows.compare import compare
+
+    free = 'name "free"\nfactor f1: q1..q4\nfactor f2: q5..q8\nordinal q1..q8\nscale latent by variance\n'
+    equal = free.replace('"free"', '"equal"') + "equal loading(f1, q1), loading(f1, q2), loading(f1, q3), loading(f1, q4)\n"
+    p_values = np.array([compare([free, equal], _draw(400, 500 + rep, per_factor=4)).tests[0].p_value for rep in range(50)])
+    assert 0.35 < p_values.mean() < 0.65  # uniform under the restriction, which holds in the population
+    assert (p_values < 0.05).mean() <= 0.14
+
+
+def test_command_line_compare_with_ordinal_items(tmp_path):
+    import json
+
+    from cfa_tool.cli import main
+
+    data = tmp_path / "answers.csv"
+    _draw(600, 5, per_factor=4).to_csv(data, index=False)
+    paths = []
+    for name, text in (("two", TWO), ("one", ONE)):
+        path = tmp_path / f"{name}.model"
+        path.write_text(text.replace("ordinal q1..q8\n", ""))
+        paths.append(str(path))
+    out = tmp_path / "compare.json"
+    assert main(["compare", *paths, "--data", str(data), "--ordinal", "all", "--json", str(out)]) == 0
+    report = json.loads(out.read_text())
+    assert report["tests"][0]["restricted"] == "one" and report["models"][0]["robust"]["chi_square_scaled"] > 0

@@ -7,7 +7,7 @@ from pathlib import Path
 
 import pandas as pd
 
-from cfa_tool.api import continuous_only, load_spec, make_options, moments_for, read_inputs_with_notes
+from cfa_tool.api import load_spec, make_options, moments_for, ordinal_items_of, read_inputs_with_notes
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file
 from cfa_tool.errors import OptionError
@@ -52,14 +52,22 @@ class Comparison:
 
 def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, group: str | None = None,
             reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-            keep: tuple[str, ...] | list[str] = (), **options) -> Comparison:
-    """Fit every model to the same rows (complete on all their variables) and test each nested pair."""
+            keep: tuple[str, ...] | list[str] = (), ordinal: str | list[str] | None = None,
+            ordinal_estimator: str = "diagonally-weighted", **options) -> Comparison:
+    """Fit every model to the same rows (complete on all their variables) and test each nested pair.
+
+    With ordinal items (an 'ordinal' statement in any model, or ``ordinal``) every model is fitted
+    by least squares on thresholds and polychoric correlations and nested pairs get the adjusted
+    difference test."""
     if len(models) < 2:
         raise OptionError("comparing needs at least two models")
     fit_options = replace(make_options(options), diagnostics=False)
-    specs = [continuous_only(load_spec(m), "compare") for m in models]
+    specs = [load_spec(m) for m in models]
+    ordinal_items = set().union(*(ordinal_items_of(spec, ordinal) for spec in specs))
     names = _unique_names(specs)
     if isinstance(data, (str, Path)) and Path(data).suffix.lower() == SUMMARY_SUFFIX:
+        if ordinal_items:
+            raise OptionError("ordinal items need the raw answers, not a summary-statistics file")
         return _compare_summary(specs, names, data, fit_options, group)
     _, loaded, _ = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
@@ -70,6 +78,9 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     if group is not None and group in frame.columns:
         complete = complete.loc[complete[group].notna()]
     dropped = len(frame) - len(complete)
+    if ordinal_items:
+        return _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items,
+                                ordinal_estimator, dropped)
     results = []
     data_groups = []
     for spec in specs:
@@ -77,6 +88,29 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         data_groups.append(groups)
         results.append(fit_moments(spec, groups, fit_options, group_column=group))
     tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
+    return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped)
+
+
+def _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items, method,
+                     dropped) -> Comparison:
+    from cfa_tool.workflows.ordinal_compare import fit_ordinal_models, ordinal_difference_test
+
+    estimations, results, data_groups = fit_ordinal_models(specs, complete, source, group, reference_group, fit_options,
+                                                           ordinal_items, method)
+    tests: list[DifferenceTest] = []
+    not_nested: list[NotNested] = []
+    for i in range(len(specs)):
+        for j in range(i + 1, len(specs)):
+            a, b = (i, j) if _df(results[i]) >= _df(results[j]) else (j, i)
+            if not (results[a].converged and results[b].converged):
+                not_nested.append(NotNested(names[a], names[b], "a model did not converge"))
+                continue
+            test, reason = ordinal_difference_test(estimations[a], estimations[b], results[a], results[b], names[a],
+                                                   names[b], data_groups[b], method)
+            if test is not None:
+                tests.append(test)
+            else:
+                not_nested.append(NotNested(names[a], names[b], reason))
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped)
 
 

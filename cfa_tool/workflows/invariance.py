@@ -40,7 +40,6 @@ ORDINAL_LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
     ("scalar", ("thresholds", "loadings", "intercepts"), ("intercept",)),
     ("strict", ("thresholds", "loadings", "intercepts", "residuals"), ("residual_variance", "residual_covariance")),
 )
-ORDINAL_DIFFERENCE = "scale-shifted adjusted difference (Asparouhov & Muthen 2006)"
 CFI_GUIDE = -0.01  # Cheung & Rensvold (2002)
 RMSEA_GUIDE = 0.015  # Chen (2007)
 PARTIAL_CHOICES = ("none", "auto")
@@ -208,7 +207,7 @@ class OrdinalLadder:
         return assess_ordinal_groups(spec, groups, est, options, group_column, self.method, modification=False)
 
     def difference(self, est, result, previous, level, previous_level) -> DifferenceTest:
-        from cfa_tool.ordinal_fitting import ordinal_difference
+        from cfa_tool.ordinal_fitting import ORDINAL_DIFFERENCE, ordinal_difference
 
         general_est, general = previous
         t = ordinal_difference(est, general_est)

@@ -1,0 +1,96 @@
+"""Rival models for ordinal items, fitted to the same rows and tested when nested.
+
+Every model is fitted by least squares on thresholds and polychoric correlations
+(one group is the one-group case of :mod:`cfa_tool.estimation.ordinal`, with the
+same fit as the single-group estimator).  Nesting is checked numerically as for
+continuous items (Bentler & Satorra 2010): the general model is fitted to the
+restricted model's implied thresholds and correlations and must reproduce them.
+The difference of the two statistics is adjusted for its mean and variance with
+U_d = U_restricted - U_general, both at the restricted estimates (Satorra 2000;
+Asparouhov & Muthen 2006).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from cfa_tool.data.polychoric import ordinal_moments
+from cfa_tool.errors import OptionError
+from cfa_tool.estimation.dwls import adjusted_statistics, residual_weights
+from cfa_tool.estimation.optimizer import minimise
+from cfa_tool.estimation.ordinal import GroupedOrdinalLeastSquares
+from cfa_tool.ordinal_fitting import ORDINAL_DIFFERENCE, assess_ordinal_groups, estimate_ordinal_groups
+from cfa_tool.workflows.nesting import NESTING_TOLERANCE, DifferenceTest
+
+
+def fit_ordinal_models(specs, complete, source, group, reference_group, fit_options, ordinal_items, method):
+    """(estimations, results, per-model groups) of every model on the same complete rows."""
+    from cfa_tool.api import check_ordinal_options, ordinal_groups
+
+    check_ordinal_options(fit_options)
+    items = set(specs[0].observed_names)
+    if any(set(spec.observed_names) != items for spec in specs[1:]):
+        raise OptionError("models of ordinal items can be compared only on the same items (their thresholds and "
+                          "correlations are the data); give every model the same indicators")
+    continuous = frozenset(items - ordinal_items)
+    estimations, results, data_groups = [], [], []
+    for spec in specs:
+        if group is None:
+            groups = [("all", ordinal_moments(complete, spec.observed_names, source, continuous))]
+        else:
+            groups, _ = ordinal_groups(spec, complete, source, group, reference_group, continuous)
+        est = estimate_ordinal_groups(spec, groups, fit_options, method)
+        estimations.append(est)
+        results.append(assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False))
+        data_groups.append(groups)
+    return estimations, results, data_groups
+
+
+def statistic_order(names_from: tuple[str, ...], names_to: tuple[str, ...], n_thresholds: dict[str, int]) -> np.ndarray:
+    """Indices that reorder one group's (thresholds, correlations) vector from one item order to another."""
+    start, position = {}, 0
+    for x in names_from:
+        start[x] = position
+        position += n_thresholds[x]
+    thresholds = [start[x] + k for x in names_to for k in range(n_thresholds[x])]
+    p = len(names_from)
+    pair_index = {}
+    for k, (i, j) in enumerate(zip(*np.tril_indices(p, -1))):
+        pair_index[frozenset((names_from[i], names_from[j]))] = position + k
+    pairs = [pair_index[frozenset((names_to[i], names_to[j]))] for i, j in zip(*np.tril_indices(p, -1))]
+    return np.asarray(thresholds + pairs, dtype=int)
+
+
+def ordinal_difference_test(restricted, general, restricted_result, general_result, restricted_name: str,
+                            general_name: str, general_groups, method: str) -> tuple[DifferenceTest | None, str]:
+    """The adjusted difference test when ``restricted`` is nested in ``general``; otherwise None and the reason."""
+    if restricted.df == general.df:
+        return None, "the models have the same degrees of freedom, so neither is a restricted form of the other"
+    if restricted.df < general.df:
+        return None, "the first model does not have more degrees of freedom than the second"
+    obj_r = restricted.objective
+    names_r, names_g = restricted.table.observed, general.table.observed
+    n_thr = {x: int(np.sum(obj_r.item_of == j)) for j, x in enumerate(names_r)}
+    order = statistic_order(names_r, names_g, n_thr)  # restricted's vector -> general's order
+    # the general model fitted to the restricted model's implied statistics (M10 of Satorra & Bentler 2010)
+    target = GroupedOrdinalLeastSquares(general.model, [m for _, m in general_groups], method)
+    target.targets = [obj_r.statistics(restricted.theta, g)[order] for g in range(len(obj_r.weights))]
+    opt = minimise(target.evaluate, target.value, general.theta, general.table.lower, general.table.upper)
+    if not opt.converged:
+        return None, "the nesting check did not converge"
+    if opt.value > NESTING_TOLERANCE:
+        return None, (f"the second model cannot reproduce the first model's implied thresholds and correlations "
+                      f"(discrepancy {opt.value:.2g}), so the first is not a special case of it")
+    D_r, _, w, gamma = obj_r.stacked(restricted.theta)
+    D_g, *_ = target.stacked(opt.theta)
+    back = np.empty_like(order)
+    back[order] = np.arange(len(order))  # general's order -> restricted's
+    size = len(order)
+    columns = np.concatenate([g * size + back for g in range(len(obj_r.weights))])
+    U = residual_weights(D_r, w) - residual_weights(D_g[:, columns], w)
+    diff = max(restricted.statistic - general.statistic, 0.0)
+    test = adjusted_statistics(diff, restricted.df - general.df, U, gamma)
+    r, g = restricted_result.robust, general_result.robust
+    return DifferenceTest(restricted_name, general_name, test.scale_shifted, restricted.df - general.df,
+                          test.scale_shifted_p, ORDINAL_DIFFERENCE, r.cfi_robust - g.cfi_robust,
+                          r.rmsea_robust - g.rmsea_robust), ""
