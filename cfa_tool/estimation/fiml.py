@@ -19,7 +19,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from cfa_tool.estimation.ml import Evaluation, evaluate_groups
+from cfa_tool.estimation.ml import Evaluation, evaluate_groups, second_derivative_contraction
 from cfa_tool.estimation.patterns import PatternData, embedded_inverse
 from cfa_tool.model.implied import StructuredModel
 
@@ -109,6 +109,50 @@ class MissingDataLikelihood:
     def evaluate(self, theta: np.ndarray) -> Evaluation | None:
         return evaluate_groups(self, theta)
 
+    def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
+        """Second derivatives of F in closed form (no higher-order factors; None otherwise).
+
+        Differentiating the gradient (module docstring) once more, per pattern k and summed with w_k:
+            H_ab = sum_k w_k [-tr(A D_a A D_b) + 2 tr(A D_a (A T A) D_b) + 2 d'A D_a A dmu_b
+                              + 2 d'A D_b A dmu_a + 2 dmu_a' A dmu_b]
+                   + tr(M D_ab) + m' dmu_ab
+        with M = sum_k w_k (A - A T A) and m = -2 sum_k w_k A d (the gradient's parts); D_ab and
+        dmu_ab are the second derivatives of Sigma and mu (Neudecker & Satorra 1991)."""
+        q = len(theta)
+        total = np.zeros((q, q))
+        for g, w_group in enumerate(self.weights):
+            data = self.patterns[g]
+            mats = self.model.matrices(theta, g)
+            if mats.B.any():
+                return None
+            inv = embedded_inverse(mats.implied_covariance(), data.observed)
+            if inv is None:
+                return None
+            A, _ = inv
+            P, p, _ = A.shape
+            w = data.counts / data.n_obs
+            dev = np.where(data.observed, data.means - mats.implied_mean(), 0.0)
+            T = data.scatter + dev[:, :, None] * dev[:, None, :]
+            ATA = A @ T @ A
+            M = np.tensordot(w, A - ATA, axes=1)
+            Ad = (A @ dev[:, :, None])[:, :, 0]  # (P, p)
+            mean_gradient = -2.0 * w @ Ad
+            d_sigma, d_mu = self.model.jacobian(theta, g)
+            flat_A = A.reshape(P, p * p)
+            weighted = flat_A * w[:, None]
+            same = _trace_product(d_sigma, weighted.T @ flat_A, p)  # sum_k w_k tr(A X A Y)
+            mixed = _trace_product(d_sigma, weighted.T @ ATA.reshape(P, p * p), p)  # sum_k w_k tr(A X (ATA) Y)
+            t3 = (Ad * w[:, None]).T @ flat_A  # [i, (j, l)] = sum_k w_k (A d)_i A_jl
+            cross = d_sigma.reshape(q, p * p) @ t3.reshape(p, p, p).reshape(p * p, p) @ d_mu.T  # d'A D_a A dmu_b
+            H = (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T)  # mixed is symmetric: 2 mixed, symmetrised
+                 + 2.0 * d_mu @ np.tensordot(w, A, axes=1) @ d_mu.T)
+            codes, rows, cols = self.model._codes[g], self.model._rows[g], self.model._cols[g]
+            second = second_derivative_contraction(mats, codes, rows, cols, M)
+            second += _mean_second_derivatives(codes, rows, cols, mean_gradient)
+            J = self.model._J[g]
+            total += w_group * (H + J.T @ second @ J)
+        return 0.5 * (total + total.T)
+
     def gradient(self, theta: np.ndarray) -> np.ndarray:
         """The gradient alone, row by row (no information matrix): what finite-difference
         second derivatives need.  With r_i = x_i - mu (observed part) and u_i = A_i r_i:
@@ -124,6 +168,7 @@ class MissingDataLikelihood:
             sigma = mats.implied_covariance()
             precision = np.linalg.inv(sigma)
             rows = data.rows
+            p = self.p
             observed, together, blocks = self._row_blocks[g]
             n = data.n_obs
             resid = np.where(observed, rows - mats.implied_mean(), 0.0)
@@ -134,13 +179,36 @@ class MissingDataLikelihood:
                 cond = np.linalg.inv(precision[miss[:, :, None], miss[:, None, :]])  # (L_mm)^-1 per row
                 side = precision[miss] * seen  # L_m. restricted to observed columns
                 z = (cond @ v[which[:, None], miss][:, :, None])[:, :, 0]
-                u[which] -= (z[:, None, :] @ side)[:, 0, :]
-                mean_A -= (side.transpose(0, 2, 1) @ (cond @ side)).sum(axis=0) / n
+                u[which] -= np.einsum("rk,rkp->rp", z, side)
+                # sum over rows of side' cond side, as one matrix product over all (row, missing item) pairs
+                mean_A -= side.reshape(-1, p).T @ (cond @ side).reshape(-1, p) / n
             u = np.where(observed, u, 0.0)
             M = mean_A - u.T @ u / n
             d_sigma, d_mu = self.model.jacobian(theta, g)
             total += w_group * (d_sigma.reshape(q, -1) @ M.ravel() - 2.0 * d_mu @ u.mean(axis=0))
         return total
+
+
+def _trace_product(d_sigma: np.ndarray, weights: np.ndarray, p: int) -> np.ndarray:
+    """sum_k w_k tr(X_k D_a Y_k D_b) for all a, b, from weights[(i, j), (c, e)] = sum_k w_k X_ij Y_ce."""
+    q = len(d_sigma)
+    G = weights.reshape(p, p, p, p).transpose(1, 2, 0, 3).reshape(p * p, p * p)  # rows (j, c), columns (i, e)
+    T = (d_sigma.reshape(q, p * p) @ G).reshape(q, p, p)  # (a, i, e) = sum_jc D_a[j, c] X_ij Y_ce
+    return T.reshape(q, -1) @ d_sigma.transpose(0, 2, 1).reshape(q, -1).T
+
+
+def _mean_second_derivatives(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, mean_gradient: np.ndarray) -> np.ndarray:
+    """m' d2mu / de de' for pairs of entries: mu = N + L M (no higher-order factors) has d2mu / dL_ij dM_j = e_i."""
+    E = len(codes)
+    out = np.zeros((E, E))
+    loads = np.flatnonzero(codes == 0)
+    means = np.flatnonzero(codes == 5)
+    if len(loads) and len(means):
+        match = cols[loads][:, None] == rows[means][None, :]
+        block = match * mean_gradient[rows[loads]][:, None]
+        out[np.ix_(loads, means)] = block
+        out[np.ix_(means, loads)] = block.T
+    return out
 
 
 def _row_blocks(rows: np.ndarray):

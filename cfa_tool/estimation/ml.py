@@ -238,15 +238,17 @@ class NormalLikelihood:
             return None
         active = self._active[0]
         cross = cross_term(self._basis[0], K, Q)
-        second = _second_derivative_contraction(mats, model._codes[0][active], model._rows[0][active],
+        second = second_derivative_contraction(mats, model._codes[0][active], model._rows[0][active],
                                                 model._cols[0][active], parts.M)
         J = self._J[0]
         H = J.T @ (expected - cross - cross.T + second) @ J
         return 0.5 * (H + H.T)
 
 
-def _second_derivative_contraction(mats, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, M: np.ndarray) -> np.ndarray:
-    """tr(M d2Sigma / de de') for all pairs of matrix entries e, e' (no higher-order factors)."""
+def second_derivative_contraction(mats, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, M: np.ndarray) -> np.ndarray:
+    """tr(M d2Sigma / de de') for all pairs of matrix entries e, e' (no higher-order factors); the
+    second derivatives of Sigma are nonzero only for two loadings and for a loading and a factor
+    (co)variance."""
     E = len(codes)
     out = np.zeros((E, E))
     e_load = np.flatnonzero(codes == 0)
