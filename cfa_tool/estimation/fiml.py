@@ -101,8 +101,7 @@ class MissingDataLikelihood:
         M = np.tensordot(w, A - ATA, axes=1)
         mean_gradient = -2.0 * np.einsum("k,kij,kj->i", w, A, dev)
         P, p, _ = A.shape
-        flat = A.reshape(P, p * p)
-        G = (flat * w[:, None]).T @ flat  # [(i, j), (a, b)] = sum_k w_k A_ij A_ab
+        G = pattern_outer(A, A, w)  # [(i, j), (a, b)] = sum_k w_k A_ij A_ab
         G = G.reshape(p, p, p, p).transpose(1, 2, 0, 3).reshape(p * p, p * p)  # rows (j, a), columns (i, b)
         return MissingParts(M, mean_gradient, G, np.tensordot(w, A, axes=1))
 
@@ -139,9 +138,8 @@ class MissingDataLikelihood:
             mean_gradient = -2.0 * w @ Ad
             d_sigma, d_mu = self.model.jacobian(theta, g)
             flat_A = A.reshape(P, p * p)
-            weighted = flat_A * w[:, None]
-            same = _trace_product(d_sigma, weighted.T @ flat_A, p)  # sum_k w_k tr(A X A Y)
-            mixed = _trace_product(d_sigma, weighted.T @ ATA.reshape(P, p * p), p)  # sum_k w_k tr(A X (ATA) Y)
+            same = _trace_product(d_sigma, pattern_outer(A, A, w), p)  # sum_k w_k tr(A X A Y)
+            mixed = _trace_product(d_sigma, pattern_outer(A, ATA, w), p)  # sum_k w_k tr(A X (ATA) Y)
             t3 = (Ad * w[:, None]).T @ flat_A  # [i, (j, l)] = sum_k w_k (A d)_i A_jl
             cross = d_sigma.reshape(q, p * p) @ t3.reshape(p, p, p).reshape(p * p, p) @ d_mu.T  # d'A D_a A dmu_b
             H = (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T)  # mixed is symmetric: 2 mixed, symmetrised
@@ -187,6 +185,20 @@ class MissingDataLikelihood:
             d_sigma, d_mu = self.model.jacobian(theta, g)
             total += w_group * (d_sigma.reshape(q, -1) @ M.ravel() - 2.0 * d_mu @ u.mean(axis=0))
         return total
+
+
+def pattern_outer(X: np.ndarray, Y: np.ndarray, w: np.ndarray) -> np.ndarray:
+    """sum_k w_k vec(X_k) vec(Y_k)' for symmetric X_k, Y_k of shape (P, p, p), as a (p*p, p*p) matrix.
+
+    Computed on the p(p+1)/2 distinct elements and expanded: about a quarter of the work."""
+    P, p, _ = X.shape
+    iu, ju = np.triu_indices(p)
+    small = (X[:, iu, ju] * w[:, None]).T @ Y[:, iu, ju]
+    position = np.empty((p, p), dtype=int)
+    position[iu, ju] = np.arange(len(iu))
+    position[ju, iu] = position[iu, ju]
+    flat = position.ravel()
+    return small[np.ix_(flat, flat)]
 
 
 def _trace_product(d_sigma: np.ndarray, weights: np.ndarray, p: int) -> np.ndarray:
