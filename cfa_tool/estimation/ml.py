@@ -13,8 +13,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.linalg import cho_factor, solve_triangular
-from scipy.linalg.lapack import dpotrf, dpotri
 
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.rank_two import basis_vectors, candidate_blocks, cross_term, entry_basis, gradient_and_information
@@ -30,7 +28,7 @@ class Evaluation:
 def log_det_pd(matrix: np.ndarray) -> float | None:
     """log-determinant of a positive-definite matrix, or None if it is not."""
     try:
-        c, _ = cho_factor(matrix, lower=True, check_finite=False)
+        c = np.linalg.cholesky(matrix)
     except np.linalg.LinAlgError:
         return None
     d = np.diag(c)
@@ -74,8 +72,8 @@ class NormalParts:
         Y = X if y_sigma is None else whiten(self.chol, y_sigma)
         out = X @ Y.T
         if self.mean_gradient is not None:
-            Wx = solve_triangular(self.chol, x_mu.T, lower=True, check_finite=False)
-            Wy = Wx if y_mu is None else solve_triangular(self.chol, y_mu.T, lower=True, check_finite=False)
+            Wx = np.linalg.solve(self.chol, x_mu.T)
+            Wy = Wx if y_mu is None else np.linalg.solve(self.chol, y_mu.T)
             out = out + 2.0 * Wx.T @ Wy
         return out
 
@@ -86,7 +84,7 @@ def information_diagonal(parts, x_sigma: np.ndarray, x_mu: np.ndarray) -> np.nda
         X = whiten(parts.chol, x_sigma)
         out = np.einsum("ij,ij->i", X, X)
         if parts.mean_gradient is not None:
-            W = solve_triangular(parts.chol, x_mu.T, lower=True, check_finite=False)
+            W = np.linalg.solve(parts.chol, x_mu.T)
             out = out + 2.0 * np.einsum("ij,ij->j", W, W)
         return out
     return parts.information_diagonal(x_sigma, x_mu)
@@ -145,17 +143,15 @@ class NormalLikelihood:
     def _compute_state(self, theta: np.ndarray, g: int):
         mats = self.model.matrices(theta, g)
         sigma = mats.implied_covariance()
-        chol, info = dpotrf(sigma, lower=1, clean=1)
-        if info != 0 or not np.all(np.isfinite(chol)):
+        try:  # numpy rather than scipy.linalg here: importing scipy.linalg costs the command's start-up time
+            chol = np.linalg.cholesky(sigma)
+        except np.linalg.LinAlgError:
             return None
         diag = np.diag(chol)
-        if np.any(diag <= 0):
+        if np.any(diag <= 0) or not np.all(np.isfinite(chol)):
             return None
-        inverse, info = dpotri(chol, lower=1)
-        if info != 0:
-            return None
-        sigma_inv = inverse + inverse.T  # dpotri fills the lower triangle only
-        sigma_inv.flat[:: self.p + 1] *= 0.5
+        chol_inv = np.linalg.inv(chol)
+        sigma_inv = chol_inv.T @ chol_inv
         S = self.groups[g].covariance
         target = S
         mean_gradient = None
@@ -300,7 +296,7 @@ def whiten(chol_lower: np.ndarray, delta: np.ndarray) -> np.ndarray:
     q, p, _ = delta.shape
     if q == 0:
         return np.zeros((0, p * p))
-    c_inv = solve_triangular(chol_lower, np.eye(p), lower=True, check_finite=False)
+    c_inv = np.linalg.inv(chol_lower)
     return (c_inv @ delta @ c_inv.T).reshape(q, p * p)
 
 
