@@ -25,6 +25,7 @@ from __future__ import annotations
 
 import difflib
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
@@ -95,13 +96,19 @@ class ParameterTable:
         return np.array([p.group for p in self.parameters], dtype=int)
 
     def mapping(self) -> tuple[np.ndarray, np.ndarray]:
-        """(J, offset) with entries = offset + J @ theta."""
+        """(J, offset) with entries = offset + J @ theta (read-only arrays, built once per table)."""
+        return self._mapping
+
+    @cached_property
+    def _mapping(self) -> tuple[np.ndarray, np.ndarray]:
         J = np.zeros((len(self.parameters), self.n_free))
         offset = np.zeros(len(self.parameters))
         for e, par in enumerate(self.parameters):
             offset[e] = par.offset
             for index, coef in par.terms:
                 J[e, index] += coef
+        J.setflags(write=False)
+        offset.setflags(write=False)
         return J, offset
 
 

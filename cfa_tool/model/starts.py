@@ -86,6 +86,9 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
             mean_std[g] = float(np.sqrt(0.5))
             pending.remove(g)
 
+    explained_of: dict[str, float] = {}  # each item's share of variance explained by its factors
+    for (f, y), v in std_loading.items():
+        explained_of[y] = explained_of.get(y, 0.0) + v * v
     target = np.zeros(len(table.parameters))
     for e, par in enumerate(table.parameters):
         if par.kind == "loading":
@@ -105,8 +108,7 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
             )
         elif par.kind == "residual_variance":
             x = par.variables[0]
-            ls = [v for (f, y), v in std_loading.items() if y == x]
-            explained = min(sum(v * v for v in ls), 0.9) if ls else 0.5
+            explained = min(explained_of[x], 0.9) if x in explained_of else 0.5
             target[e] = S[obs_ix[x], obs_ix[x]] * (1.0 - explained)
         elif par.kind == "intercept" and means is not None:
             target[e] = means[obs_ix[par.variables[0]]]
