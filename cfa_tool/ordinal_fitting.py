@@ -18,6 +18,7 @@ import numpy as np
 
 from cfa_tool.assessment.admissibility import admissibility_warnings
 from cfa_tool.assessment.fit_indices import FitIndices, chi_square_p, cfi_value, rmsea_interval, rmsea_value, tli_value
+from cfa_tool.assessment.identification import check_information_rank
 from cfa_tool.assessment.modification import ModificationIndex, candidate_entries, constrained_entries
 from cfa_tool.assessment.reliability import reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
@@ -140,6 +141,7 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
     modification: list[ModificationIndex] = []
     if opt.converged:
         D = ls.jacobian(theta)
+        check_information_rank(D @ (D.T * weights[:, None]), table.free_labels)
         cov_theta = robust_covariance(D, weights, gamma, n)
         inference = wald_inference(values, model.J, cov_theta)
         df = n_corr - table.n_free
@@ -313,6 +315,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     srmrs = [None] * G
     if est.converged:
         D, e, w, gamma = obj.stacked(theta)
+        check_information_rank(D @ (D.T * w[:, None]), table.free_labels)
         inference = wald_inference(values, model.J, robust_covariance(D, w, gamma, n))
         df = est.df
         T = est.statistic

@@ -18,7 +18,7 @@ import pandas as pd
 import pytest
 
 import cfa_tool
-from cfa_tool.errors import DataError, ModelError, OptionError
+from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError
 from cfa_tool.workflows.invariance import invariance
 
 MODEL = "factor f1: q1, q2, q3\nfactor f2: q4, q5, q6\nordinal q1..q6\n"
@@ -155,6 +155,9 @@ def test_errors_for_groups_with_ordinal_items():
     with pytest.raises(ModelError, match="'invariant thresholds' applies to ordinal items"):
         cfa_tool.fit(MODEL.replace("ordinal q1..q6\n", "") + "invariant thresholds\n", _two_groups(a, _draw(300, 2)),
                      group="site")
+    with pytest.raises(EstimationError, match=r"not identified.*mean\(f1\) \[south\]"):
+        # a factor mean with free thresholds: any shift of the mean is matched by the thresholds
+        cfa_tool.fit(MODEL + "in group south: free mean(f1)\n", _two_groups(a, _draw(300, 2)), group="site")
     with pytest.raises(ModelError, match="'q1' is not treated as ordinal"):
         cfa_tool.fit(MODEL.replace("ordinal q1..q6\n", "") + "invariant loadings\nnoninvariant threshold(q1)\n",
                      _two_groups(a, _draw(300, 2)), group="site")
