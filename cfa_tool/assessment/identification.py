@@ -52,9 +52,10 @@ def check_information_rank(information: np.ndarray, labels: tuple[str, ...]) -> 
         return
     scale = np.sqrt(np.clip(np.diag(information), 1e-300, None))
     normalised = information / np.outer(scale, scale)
-    vals, vecs = np.linalg.eigh(normalised)
+    vals = np.linalg.eigvalsh(normalised)  # eigenvalues only: the vectors are needed only to name a culprit
     if vals[0] > 1e-9 * max(vals[-1], 1.0):
         return
+    vals, vecs = np.linalg.eigh(normalised)
     weights = np.abs(vecs[:, 0])
     involved = [labels[k] for k in np.argsort(-weights) if weights[k] > 0.1][:6]
     raise EstimationError(
