@@ -97,20 +97,12 @@ def _compare_ordinal(specs, names, complete, source, group, reference_group, fit
 
     estimations, results, data_groups = fit_ordinal_models(specs, complete, source, group, reference_group, fit_options,
                                                            ordinal_items, method)
-    tests: list[DifferenceTest] = []
-    not_nested: list[NotNested] = []
-    for i in range(len(specs)):
-        for j in range(i + 1, len(specs)):
-            a, b = (i, j) if _df(results[i]) >= _df(results[j]) else (j, i)
-            if not (results[a].converged and results[b].converged):
-                not_nested.append(NotNested(names[a], names[b], "a model did not converge"))
-                continue
-            test, reason = ordinal_difference_test(estimations[a], estimations[b], results[a], results[b], names[a],
-                                                   names[b], data_groups[b], method)
-            if test is not None:
-                tests.append(test)
-            else:
-                not_nested.append(NotNested(names[a], names[b], reason))
+    def test_pair(a: int, b: int) -> tuple[list[DifferenceTest], str]:
+        test, reason = ordinal_difference_test(estimations[a], estimations[b], results[a], results[b], names[a], names[b],
+                                               data_groups[b], method)
+        return ([test] if test is not None else []), reason
+
+    tests, not_nested = _each_pair(names, results, test_pair)
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped)
 
 
@@ -130,20 +122,33 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
 
 
 def _pairwise_tests(specs, names, results, data_groups) -> tuple[list[DifferenceTest], list[NotNested]]:
+    def test_pair(a: int, b: int) -> tuple[list[DifferenceTest], str]:
+        nested, reason, m10 = is_nested(results[a], specs[b], results[b])
+        if not nested:
+            return [], reason
+        tests = [difference_test(results[a], results[b], names[a], names[b])]
+        if results[a].robust is not None and results[b].robust is not None:
+            c10 = scaling_at(m10, data_groups[b], results[b].fit.df)
+            tests.extend(scaled_difference_tests(results[a], results[b], names[a], names[b], c10))
+        return tests, ""
+
+    return _each_pair(names, results, test_pair)
+
+
+def _each_pair(names, results, test_pair) -> tuple[list[DifferenceTest], list[NotNested]]:
+    """Every pair of models, the one with more degrees of freedom first (the candidate restricted model):
+    ``test_pair(a, b)`` gives its difference tests, or none and the reason they are not nested."""
     tests: list[DifferenceTest] = []
     not_nested: list[NotNested] = []
-    for i in range(len(specs)):
-        for j in range(i + 1, len(specs)):
+    for i in range(len(results)):
+        for j in range(i + 1, len(results)):
             a, b = (i, j) if _df(results[i]) >= _df(results[j]) else (j, i)
             if not (results[a].converged and results[b].converged):
                 not_nested.append(NotNested(names[a], names[b], "a model did not converge"))
                 continue
-            nested, reason, m10 = is_nested(results[a], specs[b], results[b])
-            if nested:
-                tests.append(difference_test(results[a], results[b], names[a], names[b]))
-                if results[a].robust is not None and results[b].robust is not None:
-                    c10 = scaling_at(m10, data_groups[b], results[b].fit.df)
-                    tests.extend(scaled_difference_tests(results[a], results[b], names[a], names[b], c10))
+            found, reason = test_pair(a, b)
+            if found:
+                tests.extend(found)
             else:
                 not_nested.append(NotNested(names[a], names[b], reason))
     return tests, not_nested
