@@ -56,11 +56,8 @@ class MissingParts:
     def information(self, x_sigma, x_mu, y_sigma=None, y_mu=None) -> np.ndarray:
         y_sigma = x_sigma if y_sigma is None else y_sigma
         y_mu = x_mu if y_mu is None else y_mu
-        kx, p, _ = x_sigma.shape
         # tr(A X A Y) = sum_{ijab} A_ij X_ja A_ab Y_bi: contract X with G over (j, a), then with Y over (b, i)
-        T = (x_sigma.reshape(kx, p * p) @ self.G).reshape(kx, p, p)  # (x, i, b)
-        out = T.reshape(kx, -1) @ y_sigma.transpose(0, 2, 1).reshape(len(y_sigma), -1).T
-        return out + 2.0 * x_mu @ self.mean_weight @ y_mu.T
+        return _trace_contract(self.G, x_sigma, y_sigma) + 2.0 * x_mu @ self.mean_weight @ y_mu.T
 
 
 class MissingDataLikelihood:
@@ -87,7 +84,9 @@ class MissingDataLikelihood:
     def value(self, theta: np.ndarray) -> float:
         return float(sum(w * self.group_discrepancy(theta, g) for g, w in enumerate(self.weights)))
 
-    def group_parts(self, theta: np.ndarray, g: int) -> MissingParts | None:
+    def _pattern_state(self, theta: np.ndarray, g: int):
+        """Group g's per-pattern pieces at theta (None if some Sigma_oo is not positive definite):
+        (matrices, A, w, A T A, M, A d, m) in the notation of the module docstring."""
         data = self.patterns[g]
         mats = self.model.matrices(theta, g)
         inv = embedded_inverse(mats.implied_covariance(), data.observed)
@@ -99,11 +98,15 @@ class MissingDataLikelihood:
         T = data.scatter + dev[:, :, None] * dev[:, None, :]
         ATA = A @ T @ A
         M = np.tensordot(w, A - ATA, axes=1)
-        mean_gradient = -2.0 * np.einsum("k,kij,kj->i", w, A, dev)
-        P, p, _ = A.shape
-        G = pattern_outer(A, A, w)  # [(i, j), (a, b)] = sum_k w_k A_ij A_ab
-        G = G.reshape(p, p, p, p).transpose(1, 2, 0, 3).reshape(p * p, p * p)  # rows (j, a), columns (i, b)
-        return MissingParts(M, mean_gradient, G, np.tensordot(w, A, axes=1))
+        Ad = (A @ dev[:, :, None])[:, :, 0]
+        return mats, A, w, ATA, M, Ad, -2.0 * w @ Ad
+
+    def group_parts(self, theta: np.ndarray, g: int) -> MissingParts | None:
+        state = self._pattern_state(theta, g)
+        if state is None:
+            return None
+        _, A, w, _, M, _, mean_gradient = state
+        return MissingParts(M, mean_gradient, _trace_weights(A, A, w), np.tensordot(w, A, axes=1))
 
     def evaluate(self, theta: np.ndarray) -> Evaluation | None:
         return evaluate_groups(self, theta)
@@ -120,28 +123,18 @@ class MissingDataLikelihood:
         q = len(theta)
         total = np.zeros((q, q))
         for g, w_group in enumerate(self.weights):
-            data = self.patterns[g]
-            mats = self.model.matrices(theta, g)
+            state = self._pattern_state(theta, g)
+            if state is None:
+                return None
+            mats, A, w, ATA, M, Ad, mean_gradient = state
             if mats.B.any():
                 return None
-            inv = embedded_inverse(mats.implied_covariance(), data.observed)
-            if inv is None:
-                return None
-            A, _ = inv
             P, p, _ = A.shape
-            w = data.counts / data.n_obs
-            dev = np.where(data.observed, data.means - mats.implied_mean(), 0.0)
-            T = data.scatter + dev[:, :, None] * dev[:, None, :]
-            ATA = A @ T @ A
-            M = np.tensordot(w, A - ATA, axes=1)
-            Ad = (A @ dev[:, :, None])[:, :, 0]  # (P, p)
-            mean_gradient = -2.0 * w @ Ad
             d_sigma, d_mu = self.model.jacobian(theta, g)
-            flat_A = A.reshape(P, p * p)
-            same = _trace_product(d_sigma, pattern_outer(A, A, w), p)  # sum_k w_k tr(A X A Y)
-            mixed = _trace_product(d_sigma, pattern_outer(A, ATA, w), p)  # sum_k w_k tr(A X (ATA) Y)
-            t3 = (Ad * w[:, None]).T @ flat_A  # [i, (j, l)] = sum_k w_k (A d)_i A_jl
-            cross = d_sigma.reshape(q, p * p) @ t3.reshape(p, p, p).reshape(p * p, p) @ d_mu.T  # d'A D_a A dmu_b
+            same = _trace_contract(_trace_weights(A, A, w), d_sigma, d_sigma)  # sum_k w_k tr(A X A Y)
+            mixed = _trace_contract(_trace_weights(A, ATA, w), d_sigma, d_sigma)  # sum_k w_k tr(A X (ATA) Y)
+            t3 = (Ad * w[:, None]).T @ A.reshape(P, p * p)  # [i, (j, l)] = sum_k w_k (A d)_i A_jl
+            cross = d_sigma.reshape(q, p * p) @ t3.reshape(p * p, p) @ d_mu.T  # d'A D_a A dmu_b
             H = (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T)  # mixed is symmetric: 2 mixed, symmetrised
                  + 2.0 * d_mu @ np.tensordot(w, A, axes=1) @ d_mu.T)
             codes, rows, cols = self.model._codes[g], self.model._rows[g], self.model._cols[g]
@@ -201,12 +194,17 @@ def pattern_outer(X: np.ndarray, Y: np.ndarray, w: np.ndarray) -> np.ndarray:
     return small[np.ix_(flat, flat)]
 
 
-def _trace_product(d_sigma: np.ndarray, weights: np.ndarray, p: int) -> np.ndarray:
-    """sum_k w_k tr(X_k D_a Y_k D_b) for all a, b, from weights[(i, j), (c, e)] = sum_k w_k X_ij Y_ce."""
-    q = len(d_sigma)
-    G = weights.reshape(p, p, p, p).transpose(1, 2, 0, 3).reshape(p * p, p * p)  # rows (j, c), columns (i, e)
-    T = (d_sigma.reshape(q, p * p) @ G).reshape(q, p, p)  # (a, i, e) = sum_jc D_a[j, c] X_ij Y_ce
-    return T.reshape(q, -1) @ d_sigma.transpose(0, 2, 1).reshape(q, -1).T
+def _trace_weights(X: np.ndarray, Y: np.ndarray, w: np.ndarray) -> np.ndarray:
+    """sum_k w_k X_ij Y_ce arranged with rows (j, c) and columns (i, e), ready for :func:`_trace_contract`."""
+    p = X.shape[1]
+    return pattern_outer(X, Y, w).reshape(p, p, p, p).transpose(1, 2, 0, 3).reshape(p * p, p * p)
+
+
+def _trace_contract(G: np.ndarray, x_sigma: np.ndarray, y_sigma: np.ndarray) -> np.ndarray:
+    """sum_k w_k tr(X_k D_a Y_k E_b) for every D_a in x_sigma and E_b in y_sigma, G from :func:`_trace_weights`."""
+    kx, p, _ = x_sigma.shape
+    T = (x_sigma.reshape(kx, p * p) @ G).reshape(kx, p, p)  # (a, i, e) = sum_jc D_a[j, c] X_ij Y_ce
+    return T.reshape(kx, -1) @ y_sigma.transpose(0, 2, 1).reshape(len(y_sigma), -1).T
 
 
 def _mean_second_derivatives(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, mean_gradient: np.ndarray) -> np.ndarray:
