@@ -45,27 +45,31 @@ class GroupedOrdinalLeastSquares:
         self.n_thresholds = len(self.item_of)
 
     # -- model statistics and their derivatives
-    def statistics(self, theta: np.ndarray, g: int) -> np.ndarray | None:
+    def _latent_moments(self, theta: np.ndarray, g: int):
+        """(matrices, Sigma, its diagonal, mu, thresholds) of group g's latent responses; None when some
+        implied variance is not positive."""
         mats = self.model.matrices(theta, g)
         sigma = mats.implied_covariance()
         var = np.diag(sigma)
         if np.any(var <= 0) or not np.all(np.isfinite(var)):
             return None
+        return mats, sigma, var, mats.implied_mean(), self.model.thresholds(theta, g)
+
+    def _statistics(self, moments) -> np.ndarray:
+        _, sigma, var, mu, tau = moments
         sd = np.sqrt(var)
-        mu = mats.implied_mean()
-        tau = self.model.thresholds(theta, g)
         it = self.item_of
         i, j = self.pairs
         return np.concatenate([(tau - mu[it]) / sd[it], sigma[i, j] / (sd[i] * sd[j])])
 
-    def transform(self, theta: np.ndarray, g: int, d_sigma: np.ndarray, d_mu: np.ndarray, d_tau: np.ndarray) -> np.ndarray:
+    def statistics(self, theta: np.ndarray, g: int) -> np.ndarray | None:
+        moments = self._latent_moments(theta, g)
+        return None if moments is None else self._statistics(moments)
+
+    def _transform(self, moments, d_sigma: np.ndarray, d_mu: np.ndarray, d_tau: np.ndarray) -> np.ndarray:
         """Derivatives of (standardized thresholds, correlations) from those of Sigma, mu and tau: (k, statistics)."""
-        mats = self.model.matrices(theta, g)
-        sigma = mats.implied_covariance()
-        var = np.diag(sigma)
+        _, sigma, var, mu, tau = moments
         sd = np.sqrt(var)
-        mu = mats.implied_mean()
-        tau = self.model.thresholds(theta, g)
         it = self.item_of
         i, j = self.pairs
         d_var = np.diagonal(d_sigma, axis1=1, axis2=2)
@@ -74,18 +78,21 @@ class GroupedOrdinalLeastSquares:
         d_rho = d_sigma[:, i, j] / (sd[i] * sd[j]) - 0.5 * rho * (d_var[:, i] / var[i] + d_var[:, j] / var[j])
         return np.hstack([d_thr, d_rho])
 
-    def jacobian(self, theta: np.ndarray, g: int) -> np.ndarray:
+    def _jacobian(self, theta: np.ndarray, g: int, moments) -> np.ndarray:
         d_sigma, d_mu = self.model.jacobian(theta, g)
-        return self.transform(theta, g, d_sigma, d_mu, self.model.threshold_jacobian(g))
+        return self._transform(moments, d_sigma, d_mu, self.model.threshold_jacobian(g))
+
+    def jacobian(self, theta: np.ndarray, g: int) -> np.ndarray:
+        return self._jacobian(theta, g, self._latent_moments(theta, g))
 
     def entry_jacobian(self, theta: np.ndarray, g: int, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray) -> np.ndarray:
         """Derivatives of group g's statistics with respect to single matrix entries (candidates)."""
-        mats = self.model.matrices(theta, g)
-        d_sigma, d_mu = entry_derivatives(mats, codes, rows, cols)
+        moments = self._latent_moments(theta, g)
+        d_sigma, d_mu = entry_derivatives(moments[0], codes, rows, cols)
         d_tau = np.zeros((len(codes), self.n_thresholds))
         k = np.flatnonzero(codes == 6)
         d_tau[k, rows[k]] = 1.0
-        return self.transform(theta, g, d_sigma, d_mu, d_tau)
+        return self._transform(moments, d_sigma, d_mu, d_tau)
 
     # -- objective
     def value(self, theta: np.ndarray) -> float:
@@ -102,11 +109,11 @@ class GroupedOrdinalLeastSquares:
         q = len(theta)
         value, gradient, information = 0.0, np.zeros(q), np.zeros((q, q))
         for g, weight in enumerate(self.weights):
-            s = self.statistics(theta, g)
-            if s is None:
+            moments = self._latent_moments(theta, g)
+            if moments is None:
                 return None
-            e = self.targets[g] - s
-            D = self.jacobian(theta, g)
+            e = self.targets[g] - self._statistics(moments)
+            D = self._jacobian(theta, g, moments)
             WD = D * (weight * self.w[g])[None, :]
             value += weight * float(e @ (self.w[g] * e))
             gradient -= 2.0 * WD @ e
@@ -116,8 +123,9 @@ class GroupedOrdinalLeastSquares:
     # -- stacked pieces for robust inference
     def stacked(self, theta: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         """(D of shape (q, k), residuals e, weights diag(N_g/N W_g), Gamma blockdiag(N/N_g Gamma_g)) over all groups."""
-        D = np.hstack([self.jacobian(theta, g) for g in range(len(self.weights))])
-        e = np.concatenate([self.targets[g] - self.statistics(theta, g) for g in range(len(self.weights))])
+        moments = [self._latent_moments(theta, g) for g in range(len(self.weights))]
+        D = np.hstack([self._jacobian(theta, g, m) for g, m in enumerate(moments)])
+        e = np.concatenate([self.targets[g] - self._statistics(m) for g, m in enumerate(moments)])
         w = np.concatenate([wt * wg for wt, wg in zip(self.weights, self.w)])
         gamma = block_diag(*[gm / wt for gm, wt in zip(self.gammas, self.weights)])
         return D, e, w, gamma
