@@ -85,12 +85,18 @@ def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None 
         if reference_group is not None:
             raise OptionError("a reference group needs a group column")
         return [(None, sample_moments(frame, spec.observed_names, source, missing=missing))], notes
+    _check_group_column(spec, group)
+    groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing)
+    return groups, _no_group_notes(no_group, group)
+
+
+def _check_group_column(spec: Spec, group: str) -> None:
     if group in spec.observed_names:
         raise OptionError(f"'{group}' is an indicator in the model and cannot also be the group column")
-    groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing)
-    if no_group:
-        notes.append(f"{no_group} rows have no value in the group column '{group}' and were left out")
-    return groups, notes
+
+
+def _no_group_notes(no_group: int, group: str) -> list[str]:
+    return [f"{no_group} rows have no value in the group column '{group}' and were left out"] if no_group else []
 
 
 def prepare(model: str | Path | Spec, data: pd.DataFrame | str | Path) -> tuple[Spec, SampleMoments]:
@@ -172,20 +178,17 @@ def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: se
     from cfa_tool import ordinal_fitting
 
     check_ordinal_options(fit_options)
-    continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
     if group is None:
         if reference_group is not None:
             raise OptionError("a reference group needs a group column")
         from cfa_tool.data.polychoric import ordinal_moments
 
+        continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
         moments = ordinal_moments(frame, spec.observed_names, source, continuous)
         return ordinal_fitting.fit_ordinal(spec, moments, fit_options, method)
-    groups, no_group = ordinal_groups(spec, frame, source, group, reference_group, continuous)
+    groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items)
     result = ordinal_fitting.fit_ordinal_groups(spec, groups, fit_options, method, group)
-    if no_group:
-        result = replace(result, warnings=(f"{no_group} rows have no value in the group column '{group}' and were left out",)
-                         + result.warnings)
-    return result
+    return replace(result, warnings=tuple(notes) + result.warnings)
 
 
 def continuous_only(spec: Spec, command: str) -> Spec:
@@ -206,16 +209,18 @@ def check_ordinal_options(fit_options) -> None:
 
 
 def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, reference_group: str | None,
-                   continuous: frozenset = frozenset()):
-    """Per-group ordinal moments (every indicator must then be ordinal)."""
+                   ordinal_items: set[str]) -> tuple[list, list[str]]:
+    """Per-group ordinal moments (every indicator must then be ordinal), with notes on rows left out:
+    the ordinal counterpart of :func:`moments_for`."""
+    continuous = sorted(x for x in spec.observed_names if x not in ordinal_items)
     if continuous:
-        raise OptionError(f"with groups every indicator must be ordinal; '{sorted(continuous)[0]}' is not (declare it with "
+        raise OptionError(f"with groups every indicator must be ordinal; '{continuous[0]}' is not (declare it with "
                           f"'ordinal' or --ordinal, or fit the groups as continuous items)")
-    if group in spec.observed_names:
-        raise OptionError(f"'{group}' is an indicator in the model and cannot also be the group column")
+    _check_group_column(spec, group)
     from cfa_tool.data.groups import split_ordinal_moments
 
-    return split_ordinal_moments(frame, group, spec.observed_names, source, reference_group)
+    groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group)
+    return groups, _no_group_notes(no_group, group)
 
 
 def ordinal_items_of(spec: Spec, ordinal) -> set[str]:

@@ -199,7 +199,7 @@ def test_adjusted_difference_tests_hold_their_level_under_invariance():
     p_values = {"thresholds": [], "metric": []}
     for rep in range(60):
         data = _two_groups(_draw(400, 1000 + rep), _draw(400, 2000 + rep, mean=0.3, sd=1.1))
-        groups, _ = ordinal_groups(spec, data, "data", "site", None)
+        groups, _ = ordinal_groups(spec, data, "data", "site", None, set(spec.observed_names))
         fits = [estimate_ordinal_groups(replace(spec, invariant=classes), groups, FitOptions())
                 for classes in ((), ("thresholds",), ("thresholds", "loadings"))]
         p_values["thresholds"].append(ordinal_difference(fits[1], fits[0]).scale_shifted_p)

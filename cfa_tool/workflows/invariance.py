@@ -16,7 +16,7 @@ from pathlib import Path
 
 import pandas as pd
 
-from cfa_tool.api import ordinal_items_of, check_ordinal_options, make_options, moments_for, ordinal_groups, read_inputs
+from cfa_tool.api import check_ordinal_options, make_options, moments_for, ordinal_groups, ordinal_items_of, read_inputs
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool.errors import OptionError
 from cfa_tool.fitting import assess, estimate
@@ -128,9 +128,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     ordinal_items = ordinal_items_of(spec, ordinal)
     if ordinal_items:
         check_ordinal_options(fit_options)
-        continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
-        groups, no_group = ordinal_groups(spec, frame, source, group, reference_group, continuous)
-        notes = [f"{no_group} rows have no value in the group column '{group}' and were left out"] if no_group else []
+        groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items)
         ladder = OrdinalLadder(ordinal_estimator)
     else:
         groups, notes = moments_for(spec, frame, source, group, reference_group)

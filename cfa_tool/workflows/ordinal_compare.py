@@ -32,13 +32,12 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
     if any(set(spec.observed_names) != items for spec in specs[1:]):
         raise OptionError("models of ordinal items can be compared only on the same items (their thresholds and "
                           "correlations are the data); give every model the same indicators")
-    continuous = frozenset(items - ordinal_items)
     estimations, results, data_groups = [], [], []
     for spec in specs:
         if group is None:
-            groups = [("all", ordinal_moments(complete, spec.observed_names, source, continuous))]
+            groups = [("all", ordinal_moments(complete, spec.observed_names, source, frozenset(items - ordinal_items)))]
         else:
-            groups, _ = ordinal_groups(spec, complete, source, group, reference_group, continuous)
+            groups, _ = ordinal_groups(spec, complete, source, group, reference_group, ordinal_items)
         est = estimate_ordinal_groups(spec, groups, fit_options, method)
         estimations.append(est)
         results.append(assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False))
