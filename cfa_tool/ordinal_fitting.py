@@ -43,7 +43,6 @@ ORDINAL_NOTE = ("With ordinal items the fit indices come from the scale-shifted 
 GROUPS_NOTE = ("Ordinal items in several groups: the latent responses have intercept 0 and residual variance 1 in the first "
                "group (and wherever an item's thresholds differ across groups); loadings and residual variances are in "
                "that metric; standardized values compare across groups (identification after Wu & Estabrook 2016).")
-ORDINAL_DIFFERENCE = "scale-shifted adjusted difference (Asparouhov & Muthen 2006)"
 MI_NOTE = "modification indices for ordinal items are robust score tests (Satorra 1989)"
 
 
@@ -266,18 +265,21 @@ def ordinal_score_tests(est: OrdinalEstimation, candidates: list[list]) -> list[
     return _modification_rows(table, flat, mi, epc, lambda g: est.model.matrices(theta, g), lambda g: table.groups[g])
 
 
-def ordinal_difference(restricted: OrdinalEstimation, general: OrdinalEstimation) -> AdjustedTest:
-    """Adjusted difference test of two nested multi-group ordinal fits with the same weights.
+def ordinal_difference(restricted: OrdinalEstimation, general: OrdinalEstimation,
+                       general_derivatives: np.ndarray | None = None) -> AdjustedTest:
+    """Adjusted difference test of two nested ordinal fits with the same weights.
 
     T_d = N (F_0 - F_1), adjusted with U_d = U_0 - U_1, both evaluated at the restricted
-    estimates (Satorra 2000; Asparouhov & Muthen 2006); the general model's parameters there
-    are found from the restricted model's matrix entries, which both models share."""
-    obj0, obj1 = restricted.objective, general.objective
-    D0, _, w, gamma = obj0.stacked(restricted.theta)
-    entries = restricted.model.entry_values(restricted.theta)
-    theta1, *_ = np.linalg.lstsq(general.model.J, entries - general.model.offset, rcond=None)
-    D1, *_ = obj1.stacked(theta1)
-    U = residual_weights(D0, w) - residual_weights(D1, w)
+    estimates (Satorra 2000; Asparouhov & Muthen 2006).  ``general_derivatives``: the general
+    model's derivatives there, with the statistics in the restricted model's order; by default
+    the general model's parameters are found from the restricted model's matrix entries, which
+    the two share when they differ only in constraints (the invariance ladder)."""
+    D0, _, w, gamma = restricted.objective.stacked(restricted.theta)
+    if general_derivatives is None:
+        entries = restricted.model.entry_values(restricted.theta)
+        theta1, *_ = np.linalg.lstsq(general.model.J, entries - general.model.offset, rcond=None)
+        general_derivatives = general.objective.stacked(theta1)[0]
+    U = residual_weights(D0, w) - residual_weights(general_derivatives, w)
     diff = restricted.statistic - general.statistic
     return adjusted_statistics(max(diff, 0.0), restricted.df - general.df, U, gamma)
 

@@ -205,13 +205,11 @@ class OrdinalLadder:
         return assess_ordinal_groups(spec, groups, est, options, group_column, self.method, modification=False)
 
     def difference(self, est, result, previous, level, previous_level) -> DifferenceTest:
-        from cfa_tool.ordinal_fitting import ORDINAL_DIFFERENCE, ordinal_difference
+        from cfa_tool.ordinal_fitting import ordinal_difference
+        from cfa_tool.workflows.ordinal_compare import difference_record
 
         general_est, general = previous
-        t = ordinal_difference(est, general_est)
-        r, g = result.robust, general.robust
-        return DifferenceTest(level, previous_level, t.scale_shifted, t.df, t.scale_shifted_p, ORDINAL_DIFFERENCE,
-                              r.cfi_robust - g.cfi_robust, r.rmsea_robust - g.rmsea_robust)
+        return difference_record(ordinal_difference(est, general_est), level, previous_level, result, general)
 
     def constraint_tests(self, est, kinds):
         from cfa_tool.assessment.modification import constrained_entries

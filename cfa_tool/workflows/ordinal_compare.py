@@ -16,11 +16,12 @@ import numpy as np
 
 from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.errors import OptionError
-from cfa_tool.estimation.dwls import adjusted_statistics, residual_weights
 from cfa_tool.estimation.optimizer import minimise
 from cfa_tool.estimation.ordinal import GroupedOrdinalLeastSquares
-from cfa_tool.ordinal_fitting import ORDINAL_DIFFERENCE, assess_ordinal_groups, estimate_ordinal_groups
+from cfa_tool.ordinal_fitting import assess_ordinal_groups, estimate_ordinal_groups, ordinal_difference
 from cfa_tool.workflows.nesting import NESTING_TOLERANCE, DifferenceTest
+
+ORDINAL_DIFFERENCE = "scale-shifted adjusted difference (Asparouhov & Muthen 2006)"
 
 
 def fit_ordinal_models(specs, complete, source, group, reference_group, fit_options, ordinal_items, method):
@@ -80,16 +81,17 @@ def ordinal_difference_test(restricted, general, restricted_result, general_resu
     if opt.value > NESTING_TOLERANCE:
         return None, (f"the second model cannot reproduce the first model's implied thresholds and correlations "
                       f"(discrepancy {opt.value:.2g}), so the first is not a special case of it")
-    D_r, _, w, gamma = obj_r.stacked(restricted.theta)
     D_g, *_ = target.stacked(opt.theta)
     back = np.empty_like(order)
     back[order] = np.arange(len(order))  # general's order -> restricted's
     size = len(order)
     columns = np.concatenate([g * size + back for g in range(len(obj_r.weights))])
-    U = residual_weights(D_r, w) - residual_weights(D_g[:, columns], w)
-    diff = max(restricted.statistic - general.statistic, 0.0)
-    test = adjusted_statistics(diff, restricted.df - general.df, U, gamma)
+    test = ordinal_difference(restricted, general, D_g[:, columns])
+    return difference_record(test, restricted_name, general_name, restricted_result, general_result), ""
+
+
+def difference_record(test, restricted_name: str, general_name: str, restricted_result, general_result) -> DifferenceTest:
+    """The scale-shifted adjusted difference, with the changes in robust CFI and RMSEA, as reported."""
     r, g = restricted_result.robust, general_result.robust
-    return DifferenceTest(restricted_name, general_name, test.scale_shifted, restricted.df - general.df,
-                          test.scale_shifted_p, ORDINAL_DIFFERENCE, r.cfi_robust - g.cfi_robust,
-                          r.rmsea_robust - g.rmsea_robust), ""
+    return DifferenceTest(restricted_name, general_name, test.scale_shifted, test.df, test.scale_shifted_p,
+                          ORDINAL_DIFFERENCE, r.cfi_robust - g.cfi_robust, r.rmsea_robust - g.rmsea_robust)
