@@ -19,7 +19,7 @@ import numpy as np
 from cfa_tool.assessment.admissibility import admissibility_warnings
 from cfa_tool.assessment.fit_indices import FitIndices, chi_square_p, cfi_value, rmsea_interval, rmsea_value, tli_value
 from cfa_tool.assessment.identification import check_information_rank
-from cfa_tool.assessment.modification import ModificationIndex, candidate_entries, constrained_entries
+from cfa_tool.assessment.modification import ModificationIndex, candidate_arrays, candidate_entries
 from cfa_tool.assessment.reliability import reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.errors import OptionError
@@ -32,7 +32,7 @@ from cfa_tool.inference.standard_errors import wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import ParameterRef, Spec, ValueSetting
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
-from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable, build_parameter_table
+from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.starts import starting_values
 from cfa_tool.fitting import estimate_rows
 from cfa_tool.results import DataSummary, FitResult, GroupResult
@@ -71,16 +71,20 @@ def _robust(test: AdjustedTest, base: AdjustedTest, df: int, base_df: int, n: in
                      rmsea_value(test.scale_shifted, df, n) * root, (low * root, high * root))
 
 
-def _modification_rows(table: ParameterTable, candidates: list, mi: np.ndarray, epc: np.ndarray, mats_of, label_of) -> list[ModificationIndex]:
-    """ModificationIndex rows from per-candidate statistics; candidates are (group, Candidate)."""
+def _modification_rows(candidates: list[list], mi: np.ndarray, epc: np.ndarray, mats_of, label_of) -> list[ModificationIndex]:
+    """ModificationIndex rows from per-candidate statistics, ``candidates[g]`` being group g's
+    candidates and ``mi``, ``epc`` their statistics in that order."""
     out = []
-    for k, (g, cand) in enumerate(candidates):
-        if not np.isfinite(mi[k]):
+    start = 0
+    for g, cands in enumerate(candidates):
+        if not cands:
             continue
-        kind, variables, matrix, row, col = cand
-        std, _ = standardize_entries(mats_of(g), np.array([MATRIX_CODES[matrix]]), np.array([row]), np.array([col]),
-                                     np.array([epc[k]]))
-        out.append(ModificationIndex(kind, variables, float(mi[k]), float(epc[k]), float(std[0]), label_of(g)))
+        sl = slice(start, start + len(cands))
+        start = sl.stop
+        codes, rows, cols = candidate_arrays(cands)
+        std, _ = standardize_entries(mats_of(g), codes, rows, cols, epc[sl])
+        out.extend(ModificationIndex(kind, variables, float(m), float(c), float(z), label_of(g))
+                   for (kind, variables, *_), m, c, z in zip(cands, mi[sl], epc[sl], std) if np.isfinite(m))
     out.sort(key=lambda r: -r.index)
     return out
 
@@ -153,12 +157,9 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
         robust = _robust(test, base, df, n_corr, n)
         cands = candidate_entries(table, exogenous_factors(spec), 0)
         if cands and df > 0 and options.modification_indices:
-            c_codes = np.array([MATRIX_CODES[c[2]] for c in cands])
-            c_rows = np.array([c[3] for c in cands])
-            c_cols = np.array([c[4] for c in cands])
-            D_cand = entry_derivatives(final, c_codes, c_rows, c_cols)[0][:, pairs[0], pairs[1]]
+            D_cand = entry_derivatives(final, *candidate_arrays(cands))[0][:, pairs[0], pairs[1]]
             mi, epc = least_squares_score_tests(D, D_cand, R[pairs] - sigma[pairs], weights, gamma, n)
-            modification = _modification_rows(table, [(0, c) for c in cands], mi, epc, lambda g: final, lambda g: None)
+            modification = _modification_rows([cands], mi, epc, lambda g: final, lambda g: None)
         warnings.extend(admissibility_warnings(final, table.observed, table.latent))
         warnings.append(ORDINAL_NOTE)
     else:
@@ -248,21 +249,17 @@ def ordinal_score_tests(est: OrdinalEstimation, candidates: list[list]) -> list[
     obj, theta, table = est.objective, est.theta, est.table
     D, e, w, gamma = obj.stacked(theta)
     slices = obj.group_slices()
-    rows_all, flat = [], []
+    blocks = []
     for g, cands in enumerate(candidates):
         if not cands:
             continue
-        codes = np.array([MATRIX_CODES[c[2]] for c in cands])
-        rows = np.array([c[3] for c in cands])
-        cols = np.array([c[4] for c in cands])
         block = np.zeros((len(cands), D.shape[1]))
-        block[:, slices[g]] = obj.entry_jacobian(theta, g, codes, rows, cols)
-        rows_all.append(block)
-        flat.extend((g, c) for c in cands)
-    if not flat:
+        block[:, slices[g]] = obj.entry_jacobian(theta, g, *candidate_arrays(cands))
+        blocks.append(block)
+    if not blocks:
         return []
-    mi, epc = least_squares_score_tests(D, np.vstack(rows_all), e, w, gamma, obj.n_total)
-    return _modification_rows(table, flat, mi, epc, lambda g: est.model.matrices(theta, g), lambda g: table.groups[g])
+    mi, epc = least_squares_score_tests(D, np.vstack(blocks), e, w, gamma, obj.n_total)
+    return _modification_rows(candidates, mi, epc, lambda g: est.model.matrices(theta, g), lambda g: table.groups[g])
 
 
 def ordinal_difference(restricted: OrdinalEstimation, general: OrdinalEstimation,

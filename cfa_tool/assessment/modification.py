@@ -99,7 +99,7 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
             cands = candidates[g]
             if not cands:
                 continue
-            codes, rows, cols = _candidate_arrays(cands)
+            codes, rows, cols = candidate_arrays(cands)
             d, H_ct, h_cc = likelihood.candidate_scores(theta, g, codes, rows, cols)
             parts.append((g, cands, codes, rows, cols, model.matrices(theta, g), weight * d, weight * H_ct, weight * h_cc))
     else:
@@ -122,7 +122,8 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
     return out
 
 
-def _candidate_arrays(cands: list[Candidate]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def candidate_arrays(cands: list[Candidate]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(matrix code, row, column) arrays of candidate entries."""
     return (np.array([MATRIX_CODES[c[2]] for c in cands]), np.array([c[3] for c in cands]), np.array([c[4] for c in cands]))
 
 
@@ -139,7 +140,7 @@ def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candi
         cands = candidates[g]
         if not cands:
             continue
-        codes, rows, cols = _candidate_arrays(cands)
+        codes, rows, cols = candidate_arrays(cands)
         H_ct, h_cc, d = [], [], []
         for start in range(0, len(cands), CHUNK):  # bounded memory for models with thousands of candidates
             sl = slice(start, start + CHUNK)
