@@ -145,3 +145,31 @@ def test_counting_rule_is_checked_before_fitting(hs_data):
 
     with pytest.raises(ModelError, match="free parameters but 3 indicators give only 6"):
         cfa_tool.fit("factor f: x1, x2, x3\ncovary x1, x2, x3\n", hs_data)
+
+
+@pytest.mark.parametrize("extra, group", [("covary x1, x4\n", None), ("factor g: visual, textual, speed\n", "school")])
+def test_rank_two_derivatives_equal_the_trace_formulas(hs_data, extra, group):
+    # gradient tr(M D_a) - 2 d' S^-1 dmu_a and expected second derivatives tr(S^-1 D_a S^-1 D_b)
+    # + 2 dmu_a' S^-1 dmu_b (Browne 1974), from full derivative matrices, against the rank-two path
+    from cfa_tool.api import moments_for
+    from cfa_tool.fitting import FitOptions, estimate
+    from cfa_tool.language import parse_model
+
+    spec = parse_model(THREE_FACTORS + extra)
+    groups, _ = moments_for(spec, hs_data, "hs", group)
+    est = estimate(spec, groups, FitOptions())
+    lik, model = est.likelihood, est.model
+    theta = est.theta + 0.02 * np.random.default_rng(3).normal(size=len(est.theta))
+    gradient, information = np.zeros(len(theta)), np.zeros((len(theta), len(theta)))
+    for g, w in enumerate(lik.weights):
+        _, parts = lik._group_state(theta, g)
+        d_sigma, d_mu = model.jacobian(theta, g)
+        S = parts.sigma_inv
+        gradient += w * np.einsum("kij,ji->k", d_sigma, parts.M)
+        information += w * np.einsum("aij,jk,bkl,li->ab", d_sigma, S, d_sigma, S)
+        if parts.mean_gradient is not None:
+            gradient += w * d_mu @ parts.mean_gradient
+            information += w * 2.0 * d_mu @ S @ d_mu.T
+    rank_two = lik.evaluate(theta)
+    assert np.allclose(rank_two.gradient, gradient, atol=1e-12)
+    assert np.allclose(rank_two.information, information, atol=1e-12)

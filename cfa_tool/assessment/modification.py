@@ -22,7 +22,6 @@ import numpy as np
 
 from cfa_tool.assessment.standardized import standardize_entries
 from cfa_tool.estimation.linalg import scaled_solve
-from cfa_tool.estimation.ml import information_diagonal
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable
 
@@ -146,7 +145,7 @@ def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candi
             sl = slice(start, start + CHUNK)
             c_sigma, c_mu = entry_derivatives(mats, codes[sl], rows[sl], cols[sl])
             H_ct.append(group.information(c_sigma, c_mu, t_sigma, t_mu))
-            h_cc.append(information_diagonal(group, c_sigma, c_mu))
+            h_cc.append(group.information_diagonal(c_sigma, c_mu))
             d.append(group.gradient(c_sigma, c_mu))
         parts.append((g, cands, codes, rows, cols, mats, weight * np.concatenate(d), weight * np.vstack(H_ct),
                       weight * np.concatenate(h_cc)))

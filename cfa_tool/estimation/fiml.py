@@ -19,7 +19,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from cfa_tool.estimation.ml import Evaluation, evaluate_groups, second_derivative_contraction
+from cfa_tool.estimation.ml import Evaluation, second_derivative_contraction
 from cfa_tool.estimation.patterns import PatternData, embedded_inverse
 from cfa_tool.model.implied import StructuredModel
 
@@ -109,7 +109,21 @@ class MissingDataLikelihood:
         return MissingParts(M, mean_gradient, _trace_weights(A, A, w), np.tensordot(w, A, axes=1))
 
     def evaluate(self, theta: np.ndarray) -> Evaluation | None:
-        return evaluate_groups(self, theta)
+        """Value, gradient and patterns-fixed information summed over groups (None outside the region)."""
+        q = len(theta)
+        gradient = np.zeros(q)
+        information = np.zeros((q, q))
+        for g, w in enumerate(self.weights):
+            parts = self.group_parts(theta, g)
+            if parts is None:
+                return None
+            d_sigma, d_mu = self.model.jacobian(theta, g)
+            gradient += w * parts.gradient(d_sigma, d_mu)
+            information += w * parts.information(d_sigma, d_mu)
+        value = self.value(theta)
+        if not np.isfinite(value):
+            return None
+        return Evaluation(value, gradient, information)
 
     def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
         """Second derivatives of F in closed form (no higher-order factors; None otherwise).

@@ -48,46 +48,16 @@ class GroupMoments:
 
 
 class NormalParts:
-    """One group's pieces of the complete-data discrepancy at theta: enough to
-    differentiate it along any direction (model parameters or candidates)."""
+    """One group's pieces of the complete-data discrepancy at theta, from which
+    :mod:`cfa_tool.model.rank_two` differentiates it along any direction."""
 
     def __init__(self, chol: np.ndarray, sigma_inv: np.ndarray, M: np.ndarray, mean_gradient: np.ndarray | None,
-                 value: float | None = None):
-        self.value = value  # this group's discrepancy, when it was computed along the way
+                 value: float):
+        self.value = value  # this group's discrepancy
         self.chol = chol
         self.sigma_inv = sigma_inv
         self.M = M  # Sigma^-1 (Sigma - S - d d') Sigma^-1
         self.mean_gradient = mean_gradient  # -2 Sigma^-1 d, or None without a mean structure
-
-    def gradient(self, d_sigma: np.ndarray, d_mu: np.ndarray) -> np.ndarray:
-        g = d_sigma.reshape(len(d_sigma), -1) @ self.M.ravel()
-        if self.mean_gradient is not None:
-            g = g + d_mu @ self.mean_gradient
-        return g
-
-    def information(self, x_sigma: np.ndarray, x_mu: np.ndarray, y_sigma: np.ndarray | None = None,
-                    y_mu: np.ndarray | None = None) -> np.ndarray:
-        """tr(Sigma^-1 X Sigma^-1 Y) (+ 2 x_mu' Sigma^-1 y_mu with means); Y = X when not given."""
-        X = whiten(self.chol, x_sigma)
-        Y = X if y_sigma is None else whiten(self.chol, y_sigma)
-        out = X @ Y.T
-        if self.mean_gradient is not None:
-            Wx = np.linalg.solve(self.chol, x_mu.T)
-            Wy = Wx if y_mu is None else np.linalg.solve(self.chol, y_mu.T)
-            out = out + 2.0 * Wx.T @ Wy
-        return out
-
-
-def information_diagonal(parts, x_sigma: np.ndarray, x_mu: np.ndarray) -> np.ndarray:
-    """diag(information(X, X)) without forming the whole matrix (for long candidate lists)."""
-    if isinstance(parts, NormalParts):
-        X = whiten(parts.chol, x_sigma)
-        out = np.einsum("ij,ij->i", X, X)
-        if parts.mean_gradient is not None:
-            W = np.linalg.solve(parts.chol, x_mu.T)
-            out = out + 2.0 * np.einsum("ij,ij->j", W, W)
-        return out
-    return parts.information_diagonal(x_sigma, x_mu)
 
 
 class NormalLikelihood:
@@ -122,10 +92,6 @@ class NormalLikelihood:
 
     def value(self, theta: np.ndarray) -> float:
         return float(sum(w * self.group_discrepancy(theta, g) for g, w in enumerate(self.weights)))
-
-    def group_parts(self, theta: np.ndarray, g: int) -> NormalParts | None:
-        state = self._group_state(theta, g)
-        return None if state is None else state[1]
 
     def _group_state(self, theta: np.ndarray, g: int):
         """(matrices, parts) of group g at theta, or None when Sigma is not positive definite.
@@ -260,47 +226,3 @@ def second_derivative_contraction(mats, codes: np.ndarray, rows: np.ndarray, col
         out[np.ix_(e_load, e_cov)] = term
         out[np.ix_(e_cov, e_load)] = term.T
     return out
-
-
-def evaluate_groups(likelihood, theta: np.ndarray, with_information: bool = True, with_value: bool = True) -> Evaluation | None:
-    """Sum value, gradient and (unless not wanted) information over groups from each group's parts."""
-    q = len(theta)
-    gradient = np.zeros(q)
-    information = np.zeros((q, q)) if with_information else None
-    values = []
-    for g, w in enumerate(likelihood.weights):
-        parts = likelihood.group_parts(theta, g)
-        if parts is None:
-            return None
-        values.append(None if getattr(parts, "value", None) is None else w * parts.value)
-        d_sigma, d_mu = likelihood.model.jacobian(theta, g)
-        gradient += w * parts.gradient(d_sigma, d_mu)
-        if with_information:
-            information += w * parts.information(d_sigma, d_mu)
-    if not with_value:
-        value = float("nan")
-    elif all(v is not None for v in values):
-        value = float(sum(values))
-    else:
-        value = likelihood.value(theta)
-    if with_value and not np.isfinite(value):
-        return None
-    return Evaluation(value, gradient, information)
-
-
-def whiten(chol_lower: np.ndarray, delta: np.ndarray) -> np.ndarray:
-    """Rows vec(C^-1 D_k C^-T) for Sigma = C C', shape (q, p*p).
-
-    Then tr(Sigma^-1 D_k Sigma^-1 D_l) is the inner product of rows k and l.
-    """
-    q, p, _ = delta.shape
-    if q == 0:
-        return np.zeros((0, p * p))
-    c_inv = np.linalg.inv(chol_lower)
-    return (c_inv @ delta @ c_inv.T).reshape(q, p * p)
-
-
-def expected_information(chol_lower: np.ndarray, delta: np.ndarray) -> np.ndarray:
-    """H_kl = tr(Sigma^-1 D_k Sigma^-1 D_l), from the Cholesky factor of Sigma."""
-    X = whiten(chol_lower, delta)
-    return X @ X.T
