@@ -69,7 +69,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=()) -
     if len(set(columns)) != len(columns):
         dup = next(c for c in columns if columns.count(c) > 1)
         raise OptionError(f"{loaded.source}: the column name '{dup}' appears more than once")
-    frame = frame.set_axis(columns, axis=1)
+    if not all(type(c) is str for c in frame.columns):  # column labels as text (a renamed copy only when needed)
+        frame = frame.set_axis(columns, axis=1)
     notes: list[str] = []
     if keep:
         frame, notes = apply_filters(frame, [parse_filter(k) for k in keep], loaded.source)

@@ -30,13 +30,14 @@ class SampleMoments:
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
     """The named columns as a float array; non-numeric entries are an error naming the cell."""
-    if names:
-        selected = frame[list(names)]
-        if all(pd.api.types.is_numeric_dtype(t) for t in selected.dtypes):  # already numbers: one conversion
-            return selected.to_numpy(dtype=float, na_value=np.nan)
+    selected = [frame[name] for name in names]
+    if all(c.dtype.kind in "biuf" for c in selected):  # already numbers: copy them in (a sub-frame costs more)
+        out = np.empty((len(frame), len(names)))
+        for j, column in enumerate(selected):
+            out[:, j] = column.to_numpy(dtype=float, na_value=np.nan)
+        return out
     columns = []
-    for name in names:
-        column = frame[name]
+    for name, column in zip(names, selected):
         numeric = pd.to_numeric(column, errors="coerce")
         bad = numeric.isna() & column.notna()
         if bad.any():
