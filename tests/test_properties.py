@@ -162,7 +162,7 @@ def test_rank_two_derivatives_equal_the_trace_formulas(hs_data, extra, group):
     theta = est.theta + 0.02 * np.random.default_rng(3).normal(size=len(est.theta))
     gradient, information = np.zeros(len(theta)), np.zeros((len(theta), len(theta)))
     for g, w in enumerate(lik.weights):
-        _, parts = lik._group_state(theta, g)
+        _, parts, _ = lik._group_state(theta, g)
         d_sigma, d_mu = model.jacobian(theta, g)
         S = parts.sigma_inv
         gradient += w * np.einsum("kij,ji->k", d_sigma, parts.M)
@@ -173,3 +173,22 @@ def test_rank_two_derivatives_equal_the_trace_formulas(hs_data, extra, group):
     rank_two = lik.evaluate(theta)
     assert np.allclose(rank_two.gradient, gradient, atol=1e-12)
     assert np.allclose(rank_two.information, information, atol=1e-12)
+
+
+@pytest.mark.parametrize("extra", ["", "covary x1, x4\n"])
+def test_closed_form_hessian_equals_differences_of_the_gradient(hs_data, extra):
+    # the complete-data observed Hessian (second derivatives of Sigma laid out once per model,
+    # Neudecker & Satorra 1991) against central differences of the analytic gradient, away from the minimum
+    from cfa_tool.api import moments_for
+    from cfa_tool.estimation.linalg import difference_hessian
+    from cfa_tool.fitting import FitOptions, estimate
+    from cfa_tool.language import parse_model
+
+    spec = parse_model(THREE_FACTORS + extra)
+    groups, _ = moments_for(spec, hs_data, "hs")
+    est = estimate(spec, groups, FitOptions())
+    theta = est.theta + 0.05 * np.random.default_rng(5).normal(size=len(est.theta))
+    closed = est.likelihood.observed_hessian(theta)
+    numeric = difference_hessian(est.likelihood.gradient, theta, central=True)
+    assert np.allclose(closed, numeric, atol=1e-6 * np.abs(numeric).max())
+    assert not np.allclose(closed, est.likelihood.evaluate(theta).information, atol=1e-4)  # not the expected one

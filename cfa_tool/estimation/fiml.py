@@ -19,7 +19,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from cfa_tool.estimation.ml import Evaluation, second_derivative_contraction
+from cfa_tool.estimation.ml import Evaluation
+from cfa_tool.model.rank_two import second_derivative_contraction
 from cfa_tool.estimation.patterns import PatternData, embedded_inverse
 from cfa_tool.model.implied import StructuredModel
 
@@ -152,7 +153,7 @@ class MissingDataLikelihood:
             H = (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T)  # mixed is symmetric: 2 mixed, symmetrised
                  + 2.0 * d_mu @ np.tensordot(w, A, axes=1) @ d_mu.T)
             codes, rows, cols = self.model._codes[g], self.model._rows[g], self.model._cols[g]
-            second = second_derivative_contraction(mats, codes, rows, cols, M)
+            second = second_derivative_contraction(self.model.all_second_orders[g], M, mats.L, mats.P)
             second += _mean_second_derivatives(codes, rows, cols, mean_gradient)
             J = self.model._J[g]
             total += w_group * (H + J.T @ second @ J)

@@ -14,13 +14,17 @@ def _scales(H: np.ndarray) -> np.ndarray:
     return 1.0 / np.sqrt(np.clip(np.abs(np.diag(H)), 1e-300, None))
 
 
-def scaled_solve(H: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """Solve H x = b (b a vector or a matrix of columns)."""
+def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) -> np.ndarray:
+    """Solve H x = b (b a vector or a matrix of columns); with ``positive_definite`` a matrix that
+    is not raises LinAlgError (checked by a Cholesky factorisation of the scaled matrix)."""
     if H.size == 0:
         return np.array(b, dtype=float, copy=True)
     d = _scales(H)
     dd = d if b.ndim == 1 else d[:, None]
-    return dd * np.linalg.solve(H * np.outer(d, d), dd * b)
+    scaled = H * np.outer(d, d)
+    if positive_definite:
+        np.linalg.cholesky(scaled)
+    return dd * np.linalg.solve(scaled, dd * b)
 
 
 def scaled_inverse(H: np.ndarray) -> np.ndarray:

@@ -15,7 +15,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.model.implied import StructuredModel
-from cfa_tool.model.rank_two import basis_vectors, candidate_blocks, cross_term, entry_basis, gradient_and_information
+from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, entry_basis, gradient_and_information,
+                                     second_derivative_contraction)
 
 
 @dataclass(frozen=True)
@@ -94,10 +95,12 @@ class NormalLikelihood:
         return float(sum(w * self.group_discrepancy(theta, g) for g, w in enumerate(self.weights)))
 
     def _group_state(self, theta: np.ndarray, g: int):
-        """(matrices, parts) of group g at theta, or None when Sigma is not positive definite.
+        """[matrices, parts, rank-two pieces or None] of group g at theta, or None when Sigma is not
+        positive definite.
 
         The last result per group is kept: a line search's trial value, the evaluation that
-        follows at the accepted point and the Hessian there all need the same factorisation."""
+        follows at the accepted point and the Hessian there all need the same factorisation
+        (and the last two the same rank-two pieces)."""
         key = theta.tobytes()
         memo = self._memo.get(g)
         if memo is not None and memo[0] == key:
@@ -113,32 +116,35 @@ class NormalLikelihood:
             chol = np.linalg.cholesky(sigma)
         except np.linalg.LinAlgError:
             return None
-        diag = np.diag(chol)
-        if np.any(diag <= 0) or not np.all(np.isfinite(chol)):
+        log_det = 2.0 * float(np.log(np.diagonal(chol)).sum())
+        if not np.isfinite(log_det):
             return None
         chol_inv = np.linalg.inv(chol)
         sigma_inv = chol_inv.T @ chol_inv
         S = self.groups[g].covariance
-        target = S
         mean_gradient = None
-        value = 2.0 * float(np.sum(np.log(diag))) + float(np.sum(sigma_inv * S)) - self.logdet_S[g] - self.p
+        value = log_det + float(np.vdot(sigma_inv, S)) - self.logdet_S[g] - self.p
+        target = sigma - S
         if self.means:
             dev = self.groups[g].mean - mats.implied_mean()
-            target = target + np.outer(dev, dev)
+            target -= np.outer(dev, dev)
             mean_gradient = -2.0 * sigma_inv @ dev
             value += float(dev @ sigma_inv @ dev)
-        return mats, NormalParts(chol, sigma_inv, sigma_inv @ (sigma - target) @ sigma_inv, mean_gradient, value)
+        return [mats, NormalParts(chol, sigma_inv, sigma_inv @ target @ sigma_inv, mean_gradient, value), None]
 
     def _rank_two(self, theta: np.ndarray, g: int, with_information: bool = True):
         """(mats, parts, gradient and information over the group's active entries, K, Q) or None."""
         state = self._group_state(theta, g)
         if state is None:
             return None
-        mats, parts = state
-        V, a = basis_vectors(mats.L, mats.A, mats.P, mats.M if self.means else None)
+        mats, parts, known = state
+        if known is not None and (known[3] is not None or not with_information):
+            return known
+        V, a = basis_vectors(mats, self.means)
         g_e, H_e, K, Q = gradient_and_information(self._basis[g], V, a, parts.sigma_inv, parts.M, parts.mean_gradient,
                                                   with_information)
-        return mats, parts, g_e, H_e, K, Q
+        state[2] = (mats, parts, g_e, H_e, K, Q)
+        return state[2]
 
     def evaluate(self, theta: np.ndarray) -> Evaluation | None:
         """Value, gradient and expected information at theta (None if some Sigma is not positive definite)."""
@@ -151,7 +157,7 @@ class NormalLikelihood:
         if out is None:
             return None
         mats, parts, _, _, K, Q = out
-        V, a = basis_vectors(mats.L, mats.A, mats.P, mats.M if self.means else None)
+        V, a = basis_vectors(mats, self.means)
         Vm = V.T @ parts.mean_gradient if parts.mean_gradient is not None else None
         cand = entry_basis(codes, rows, cols, self.model.p, self.model.m, with_pairs=False)
         d, H_ce, h = candidate_blocks(cand, self._basis[g], K, Q, Vm, a)
@@ -167,11 +173,16 @@ class NormalLikelihood:
             if out is None:
                 return None
             _, parts, g_e, H_e, _, _ = out
-            J = self._J[g]
             value += w * parts.value
-            gradient += w * (g_e @ J)
-            if with_information:
-                information += w * (J.T @ H_e @ J)
+            if self.model.identity_J[g]:
+                gradient += w * g_e
+                if with_information:
+                    information += w * H_e
+            else:
+                J = self._J[g]
+                gradient += w * (g_e @ J)
+                if with_information:
+                    information += w * (J.T @ H_e @ J)
         if not np.isfinite(value):
             return None
         return Evaluation(value, gradient, information)
@@ -190,39 +201,15 @@ class NormalLikelihood:
         nonzero only for pairs of loadings (2 M_ik Phi_jl) and loading-factor covariance
         pairs (Neudecker & Satorra 1991 give the general second derivatives)."""
         model = self.model
-        if len(self.groups) != 1 or self.means:
+        if len(self.groups) != 1 or self.means or model.higher_order:
             return None
         out = self._rank_two(theta, 0)
         if out is None:
             return None
         mats, parts, _, expected, K, Q = out
-        if mats.B.any():
-            return None
-        active = self._active[0]
         cross = cross_term(self._basis[0], K, Q)
-        second = second_derivative_contraction(mats, model._codes[0][active], model._rows[0][active],
-                                                model._cols[0][active], parts.M)
-        J = self._J[0]
-        H = J.T @ (expected - cross - cross.T + second) @ J
+        H = expected - cross - cross.T + second_derivative_contraction(model.second_orders[0], parts.M, mats.L, mats.P)
+        if not model.identity_J[0]:
+            J = self._J[0]
+            H = J.T @ H @ J
         return 0.5 * (H + H.T)
-
-
-def second_derivative_contraction(mats, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, M: np.ndarray) -> np.ndarray:
-    """tr(M d2Sigma / de de') for all pairs of matrix entries e, e' (no higher-order factors); the
-    second derivatives of Sigma are nonzero only for two loadings and for a loading and a factor
-    (co)variance."""
-    E = len(codes)
-    out = np.zeros((E, E))
-    e_load = np.flatnonzero(codes == 0)
-    e_cov = np.flatnonzero(codes == 2)
-    li, lj = rows[e_load], cols[e_load]
-    out[np.ix_(e_load, e_load)] = 2.0 * M[np.ix_(li, li)] * mats.P[np.ix_(lj, lj)]
-    if len(e_cov):
-        MG = M @ mats.L
-        pk, pl = rows[e_cov], cols[e_cov]
-        term = ((lj[:, None] == pk[None, :]) * MG[li[:, None], pl[None, :]]
-                + (lj[:, None] == pl[None, :]) * MG[li[:, None], pk[None, :]])
-        term = 2.0 * term * np.where(pk == pl, 0.5, 1.0)[None, :]
-        out[np.ix_(e_load, e_cov)] = term
-        out[np.ix_(e_cov, e_load)] = term.T
-    return out

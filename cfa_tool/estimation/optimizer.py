@@ -54,37 +54,52 @@ def minimise(
         g = current.gradient
         active = ((theta <= lower) & (g > 0)) | ((theta >= upper) & (g < 0))
         inactive = ~active
-        step = np.zeros_like(theta)
         free_all = not active.any()
-        try:
-            if free_all:
-                step = scaled_solve(current.information, -g)
-            else:
-                step[inactive] = scaled_solve(current.information[np.ix_(inactive, inactive)], -g[inactive])
-        except np.linalg.LinAlgError:
-            break
-        if not np.all(np.isfinite(step)):
-            break
-        # Newton decrement g' H^-1 g: about twice the distance to the minimum of F, whatever the units
-        decrement = float(-g[inactive] @ step[inactive])
-        if decrement < tolerance:
-            return OptimizerResult(theta, current.value, g, iterations - 1, True, "converged")
-        # scoring converges linearly when the model misfits: then switch to Newton near the minimum;
-        # with a closed-form Hessian Newton is cheap enough to take as soon as it is safe
-        slow = decrement > 0.05 * previous_decrement
-        previous_decrement = decrement
         idx = np.flatnonzero(inactive)
-        observed = None
-        if hessian is not None and hessian_usable is not False and decrement < CLOSED_FORM_NEWTON_BELOW:
+        newton = None
+        if (hessian is not None and hessian_usable is not False
+                and NEAR_MINIMUM < previous_decrement < CLOSED_FORM_NEWTON_BELOW):
+            # Newton's phase: the closed-form Hessian alone gives the step and its decrement
             full = hessian(theta)
-            hessian_usable = full is not None  # a likelihood without one says so once
-            observed = None if full is None else (full if free_all else full[np.ix_(idx, idx)])
-        if observed is None and gradient is not None and decrement < newton_below and slow:
-            observed = difference_hessian(gradient, theta, central=False, base=g, indices=idx)
-        if observed is not None:
-            newton = _newton_from(observed, theta, g, idx)
-            if newton is not None:
-                step = newton
+            hessian_usable = full is not None
+            if full is not None:
+                newton = _newton_from(full if free_all else full[np.ix_(idx, idx)], theta, g, idx)
+        if newton is not None:
+            step = newton
+            decrement = float(-g[idx] @ step[idx])
+            if decrement < tolerance:
+                return OptimizerResult(theta, current.value, g, iterations - 1, True, "converged")
+            previous_decrement = decrement
+        else:
+            step = np.zeros_like(theta)
+            try:
+                if free_all:
+                    step = scaled_solve(current.information, -g)
+                else:
+                    step[inactive] = scaled_solve(current.information[np.ix_(inactive, inactive)], -g[inactive])
+            except np.linalg.LinAlgError:
+                break
+            if not np.all(np.isfinite(step)):
+                break
+            # Newton decrement g' H^-1 g: about twice the distance to the minimum of F, whatever the units
+            decrement = float(-g[inactive] @ step[inactive])
+            if decrement < tolerance:
+                return OptimizerResult(theta, current.value, g, iterations - 1, True, "converged")
+            # scoring converges linearly when the model misfits: then switch to Newton near the minimum;
+            # with a closed-form Hessian Newton is cheap enough to take as soon as it is safe
+            slow = decrement > 0.05 * previous_decrement
+            previous_decrement = decrement
+            observed = None
+            if hessian is not None and hessian_usable is not False and decrement < CLOSED_FORM_NEWTON_BELOW:
+                full = hessian(theta)
+                hessian_usable = full is not None  # a likelihood without one says so once
+                observed = None if full is None else (full if free_all else full[np.ix_(idx, idx)])
+            if observed is None and gradient is not None and decrement < newton_below and slow:
+                observed = difference_hessian(gradient, theta, central=False, base=g, indices=idx)
+            if observed is not None:
+                newton = _newton_from(observed, theta, g, idx)
+                if newton is not None:
+                    step = newton
         slope = float(g @ step)
         if slope >= 0:  # not a descent direction: fall back to steepest descent
             step = -np.where(active, 0.0, g)
@@ -108,18 +123,22 @@ def minimise(
 
 
 CLOSED_FORM_NEWTON_BELOW = 1e-2
+# below this decrement the next step most likely ends the search: the cheaper scoring solve checks it
+NEAR_MINIMUM = 1e-8
 
 
 def _newton_from(H: np.ndarray, theta: np.ndarray, g: np.ndarray, idx: np.ndarray) -> np.ndarray | None:
     """Newton step over the free parameters idx with observed Hessian H; None when H is not
     positive definite (then scoring continues)."""
     try:
-        np.linalg.cholesky(H)
+        delta = -scaled_solve(H, g[idx], positive_definite=True)
     except np.linalg.LinAlgError:
         return None
+    if not np.all(np.isfinite(delta)):
+        return None
     step = np.zeros_like(theta)
-    step[idx] = -scaled_solve(H, g[idx])
-    return step if np.all(np.isfinite(step)) else None
+    step[idx] = delta
+    return step
 
 
 def newton_decrement(ev: Evaluation, theta: np.ndarray, lower: np.ndarray, upper: np.ndarray) -> float:

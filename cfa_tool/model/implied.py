@@ -15,11 +15,12 @@ that of mu a single vector:
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
 from cfa_tool.model.parameters import ParameterTable
-from cfa_tool.model.rank_two import entry_basis
+from cfa_tool.model.rank_two import entry_basis, second_order_layout
 
 
 @dataclass(frozen=True)
@@ -31,12 +32,17 @@ class ModelMatrices:
     N: np.ndarray
     M: np.ndarray
 
-    @property
+    @cached_property
     def A(self) -> np.ndarray:
         m = self.B.shape[0]
         if not self.B.any():
             return np.eye(m)
         return np.linalg.inv(np.eye(m) - self.B)
+
+    @cached_property
+    def G(self) -> np.ndarray:
+        """L A: the indicators' loadings on every factor, through higher-order paths too."""
+        return self.L if not self.B.any() else self.L @ self.A
 
     def latent_covariance(self) -> np.ndarray:
         """Total (co)variances of the factors: A P A'."""
@@ -47,11 +53,11 @@ class ModelMatrices:
         return self.A @ self.M
 
     def implied_covariance(self) -> np.ndarray:
-        G = self.L @ self.A
+        G = self.G
         return G @ self.P @ G.T + self.T
 
     def implied_mean(self) -> np.ndarray:
-        return self.N + self.L @ (self.A @ self.M)
+        return self.N + self.G @ self.M
 
 
 class StructuredModel:
@@ -82,11 +88,19 @@ class StructuredModel:
         self._layouts = [self._layout(g) for g in range(self.n_groups)]
         # per group: the entries that depend on theta, their rank-two description and their rows of J
         self.active, self.bases, self.active_J = [], [], []
+        # where second derivatives of Sigma land, over the active entries and over all entries
+        self.second_orders, self.all_second_orders = [], []
         for g in range(self.n_groups):
             active = np.flatnonzero(self._J[g].any(axis=1))
             self.active.append(active)
-            self.bases.append(entry_basis(self._codes[g][active], self._rows[g][active], self._cols[g][active], self.p, self.m))
+            codes, rows, cols = self._codes[g], self._rows[g], self._cols[g]
+            self.bases.append(entry_basis(codes[active], rows[active], cols[active], self.p, self.m))
+            self.second_orders.append(second_order_layout(codes[active], rows[active], cols[active], self.p, self.m))
+            self.all_second_orders.append(second_order_layout(codes, rows, cols, self.p, self.m))
             self.active_J.append(self._J[g][active])
+        # each parameter is one active entry, in order (no equality constraints): products with J can be skipped
+        self.identity_J = [J.shape[0] == J.shape[1] and np.array_equal(J, np.eye(J.shape[0])) for J in self.active_J]
+        self.higher_order = bool(np.any(table.entry_arrays()[0] == 1))
 
     # -- matrices
     def entry_values(self, theta: np.ndarray) -> np.ndarray:

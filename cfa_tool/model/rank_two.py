@@ -84,13 +84,16 @@ def entry_basis(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, p: int, m
                       np.outer(c, c) if with_pairs else np.zeros((0, 0)))
 
 
-def basis_vectors(L: np.ndarray, A: np.ndarray, P: np.ndarray, M: np.ndarray | None) -> tuple[np.ndarray, np.ndarray]:
-    """(V = [I, C', G], a = A M) at the current matrices."""
-    G = L @ A
-    C = A @ P @ G.T
-    p = L.shape[0]
-    V = np.hstack([np.eye(p), C.T, G])
-    a = A @ M if M is not None else np.zeros(A.shape[0])
+def basis_vectors(mats, means: bool) -> tuple[np.ndarray, np.ndarray]:
+    """(V = [I, C', G], a = A M) at a group's model matrices (a is zero without a mean structure)."""
+    G, A = mats.G, mats.A
+    C = A @ mats.P @ G.T
+    p, m = G.shape
+    V = np.empty((p, p + 2 * m))
+    V[:, :p] = np.eye(p)
+    V[:, p:p + m] = C.T
+    V[:, p + m:] = G
+    a = A @ mats.M if means else np.zeros(m)
     return V, a
 
 
@@ -144,3 +147,55 @@ def candidate_blocks(cand: EntryBasis, model: EntryBasis, K: np.ndarray, Q: np.n
         H += 2.0 * np.outer(sc, se) * K[np.ix_(cand.w, model.w)]
         h = h + 2.0 * sc**2 * K[cand.w, cand.w]
     return d, H, h
+
+
+@dataclass(frozen=True)
+class SecondOrderLayout:
+    """Where tr(M d2Sigma / de de') lands for pairs of entries (no higher-order factors, so G = L).
+
+    Only two kinds of pair have a second derivative (Neudecker & Satorra 1991): two loadings
+    L[i, j], L[k, l] give 2 M[i, k] P[j, l]; a loading L[i, j] and a factor (co)variance P[k, l]
+    give 2 c ([j == k] (M L)[i, l] + [j == l] (M L)[i, k]), c = 1/2 on the diagonal of P.
+    The positions are fixed by the model, so they are laid out once."""
+
+    size: int
+    load_load: np.ndarray  # flat positions in the E x E result
+    m_at: np.ndarray  # flat positions in M (p x p)
+    p_at: np.ndarray  # flat positions in P (m x m)
+    load_cov: np.ndarray  # flat positions of (loading, covariance) pairs in the result
+    cov_load: np.ndarray  # their mirror images
+    first: np.ndarray  # flat positions in M L (p x m) and their weights
+    first_weight: np.ndarray
+    second: np.ndarray
+    second_weight: np.ndarray
+
+
+def second_order_layout(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, p: int, m: int) -> SecondOrderLayout:
+    E = len(codes)
+    e_load = np.flatnonzero(codes == 0)
+    e_cov = np.flatnonzero(codes == 2)
+    li, lj = rows[e_load], cols[e_load]
+    pk, pl = rows[e_cov], cols[e_cov]
+    c = 2.0 * np.where(pk == pl, 0.5, 1.0)[None, :]
+
+    def flat(r, k, width):
+        return (r[:, None] * width + k[None, :]).ravel()
+
+    return SecondOrderLayout(
+        E, flat(e_load, e_load, E), flat(li, li, p), flat(lj, lj, m),
+        flat(e_load, e_cov, E), flat(e_cov, e_load, E).reshape(len(e_cov), len(e_load)).T.ravel(),
+        (li[:, None] * m + pl[None, :]).ravel(), ((lj[:, None] == pk[None, :]) * c).ravel(),
+        (li[:, None] * m + pk[None, :]).ravel(), ((lj[:, None] == pl[None, :]) * c).ravel(),
+    )
+
+
+def second_derivative_contraction(layout: SecondOrderLayout, M: np.ndarray, L: np.ndarray, P: np.ndarray) -> np.ndarray:
+    """tr(M d2Sigma / de de') for all pairs of the layout's entries (see :class:`SecondOrderLayout`)."""
+    out = np.zeros(layout.size * layout.size)
+    out[layout.load_load] = 2.0 * M.ravel()[layout.m_at] * P.ravel()[layout.p_at]
+    if len(layout.load_cov):
+        ML = (M @ L).ravel()
+        term = ML[layout.first] * layout.first_weight + ML[layout.second] * layout.second_weight
+        out[layout.load_cov] = term
+        out[layout.cov_load] = term
+    return out.reshape(layout.size, layout.size)
