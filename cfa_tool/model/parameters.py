@@ -86,14 +86,33 @@ class ParameterTable:
         return len(self.groups)
 
     def entry_arrays(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-        """(matrix code, row, col) arrays for all parameters."""
+        """(matrix code, row, col) arrays for all parameters (read-only, built once per table)."""
+        return self._entry_arrays
+
+    @cached_property
+    def _entry_arrays(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         codes = np.array([MATRIX_CODES[p.matrix] for p in self.parameters], dtype=int)
         rows = np.array([p.row for p in self.parameters], dtype=int)
         cols = np.array([p.col for p in self.parameters], dtype=int)
+        for a in (codes, rows, cols):
+            a.setflags(write=False)
         return codes, rows, cols
 
     def group_array(self) -> np.ndarray:
-        return np.array([p.group for p in self.parameters], dtype=int)
+        return self._group_array
+
+    @cached_property
+    def _group_array(self) -> np.ndarray:
+        groups = np.array([p.group for p in self.parameters], dtype=int)
+        groups.setflags(write=False)
+        return groups
+
+    @cached_property
+    def start_plan(self):
+        """What the start finder needs from this table (:func:`cfa_tool.model.starts.start_plan`), read once."""
+        from cfa_tool.model.starts import start_plan  # the start finder builds on this module
+
+        return start_plan(self)
 
     def mapping(self) -> tuple[np.ndarray, np.ndarray]:
         """(J, offset) with entries = offset + J @ theta (read-only arrays, built once per table)."""

@@ -10,144 +10,213 @@ least squares, which respects equality constraints and effects coding.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 
 from cfa_tool.model.parameters import ParameterTable
 
 
+@dataclass(frozen=True)
+class FactorBlock:
+    """k factors with n indicators each, whose one-factor solutions are found as one stack."""
+
+    factors: np.ndarray  # (k,)
+    items: np.ndarray  # (k, n)
+    share: np.ndarray  # (k, n): sqrt of each item's number of factors
+    # how each factor's variance is set: 0 fixed at ``value``, 1 by the marker at ``position`` with loading
+    # ``value``, 2 from the mean loading
+    rule: np.ndarray
+    position: np.ndarray
+    value: np.ndarray
+
+
+@dataclass(frozen=True)
+class StartPlan:
+    """What the start finder reads from a parameter table, laid out once per table (positions are
+    indices into ``table.parameters``, ``table.observed`` and ``table.latent``)."""
+
+    blocks: tuple[FactorBlock, ...]  # the factors with indicators, by number of indicators
+    # higher-order factors, lowest level first: (factor, the factors it loads on, scale rule)
+    higher: tuple[tuple[int, tuple[int, ...], tuple], ...]
+    endogenous: np.ndarray  # bool per factor: loads on a higher-order factor
+    mean_weights: np.ndarray  # (m, p): 1 / (number of items) for each factor's items, for mean correlations
+    has_factor: np.ndarray  # bool per item: has a loading
+    loads: tuple[np.ndarray, np.ndarray, np.ndarray]  # (entries, factor, item) of indicator loadings
+    paths: tuple[np.ndarray, np.ndarray, np.ndarray]  # (entries, higher factor, lower factor)
+    variances: tuple[np.ndarray, np.ndarray]  # (entries, factor)
+    covariances: tuple[np.ndarray, np.ndarray, np.ndarray]  # (entries, factor a, factor b)
+    residuals: tuple[np.ndarray, np.ndarray]  # (entries, item)
+    intercepts: tuple[np.ndarray, np.ndarray]
+    thresholds: tuple[np.ndarray, np.ndarray]  # (entries, position among the stacked thresholds)
+    solve: np.ndarray  # (q, E): least-squares map from entry targets to theta
+
+
+def start_plan(table: ParameterTable) -> StartPlan:
+    """Read the table's structure once (see :class:`StartPlan`)."""
+    lat_ix = {n: i for i, n in enumerate(table.latent)}
+    obs_ix = {n: i for i, n in enumerate(table.observed)}
+    m, p = len(table.latent), len(table.observed)
+    items: dict[int, list[int]] = {f: [] for f in range(m)}
+    lower: dict[int, list[int]] = {f: [] for f in range(m)}
+    fixed_var: dict[int, float] = {}
+    fixed_load: dict[int, tuple[int, float]] = {}  # factor -> (item or lower factor, fixed loading)
+    endogenous = np.zeros(m, dtype=bool)
+    recipes: dict[str, list[tuple]] = {k: [] for k in ("L", "B", "var", "cov", "res", "int", "thr")}
+    for e, par in enumerate(table.parameters):
+        kind = par.kind
+        if kind == "loading":
+            f, x = par.variables
+            if par.matrix == "B":
+                endogenous[lat_ix[x]] = True
+                target = lower[lat_ix[f]]
+                recipes["B"].append((e, lat_ix[f], lat_ix[x]))
+            else:
+                target = items[lat_ix[f]]
+                recipes["L"].append((e, lat_ix[f], obs_ix[x]))
+            k = lat_ix[x] if par.matrix == "B" else obs_ix[x]
+            if k not in target:  # several groups repeat each entry
+                target.append(k)
+            if not par.free and par.offset != 0.0 and lat_ix[f] not in fixed_load:
+                fixed_load[lat_ix[f]] = (k, par.offset)
+        elif kind == "factor_variance":
+            recipes["var"].append((e, lat_ix[par.variables[0]]))
+            if not par.free:
+                fixed_var[lat_ix[par.variables[0]]] = par.offset
+        elif kind == "factor_covariance":
+            recipes["cov"].append((e, lat_ix[par.variables[0]], lat_ix[par.variables[1]]))
+        elif kind == "residual_variance":
+            recipes["res"].append((e, obs_ix[par.variables[0]]))
+        elif kind == "intercept":
+            recipes["int"].append((e, obs_ix[par.variables[0]]))
+        elif kind == "threshold":
+            recipes["thr"].append((e, par.row))
+        # residual covariances and factor means start at zero
+
+    n_factors = np.zeros(p)
+    for ix in items.values():
+        n_factors[ix] += 1
+    rules = {}
+    mean_weights = np.zeros((m, p))
+    for f, ix in items.items():
+        if not ix:
+            continue
+        if f in fixed_var:
+            rules[f] = (0, 0, fixed_var[f] * (2.0 if endogenous[f] else 1.0))
+        elif f in fixed_load and fixed_load[f][0] in ix:
+            rules[f] = (1, ix.index(fixed_load[f][0]), fixed_load[f][1])
+        else:
+            rules[f] = (2, 0, 1.0)
+        mean_weights[f, ix] = 1.0 / len(ix)
+    blocks = []
+    for n in sorted({len(ix) for ix in items.values() if ix}):
+        fs = [f for f, ix in items.items() if len(ix) == n]
+        ix = np.array([items[f] for f in fs])
+        rule, position, value = (np.array(v) for v in zip(*(rules[f] for f in fs)))
+        blocks.append(FactorBlock(np.array(fs), ix, np.sqrt(n_factors[ix]), rule, position, value))
+    known = {f for f, ix in items.items() if ix}
+    pending = [f for f in range(m) if lower[f]]
+    higher = []
+    for _ in range(len(pending) + 1):
+        for g in list(pending):
+            if not all(h in known for h in lower[g]):
+                continue
+            if g in fixed_var:
+                rule = ("variance", fixed_var[g])
+            elif g in fixed_load and fixed_load[g][0] in known:
+                rule = ("marker", fixed_load[g][0], fixed_load[g][1])
+            else:
+                rule = ("mean",)
+            higher.append((g, tuple(lower[g]), rule))
+            known.add(g)
+            pending.remove(g)
+
+    def columns(key: str, width: int) -> tuple[np.ndarray, ...]:
+        rows = np.array(recipes[key], dtype=int).reshape(-1, width)
+        return tuple(rows[:, k] for k in range(width))
+
+    J, _ = table.mapping()
+    try:
+        solve = np.linalg.solve(J.T @ J, J.T)  # J'J is nearly diagonal here
+    except np.linalg.LinAlgError:
+        solve = np.linalg.pinv(J)
+    return StartPlan(tuple(blocks), tuple(higher), endogenous, mean_weights, n_factors > 0,
+                     columns("L", 3), columns("B", 3), columns("var", 2), columns("cov", 3), columns("res", 2),
+                     columns("int", 2), columns("thr", 2), solve)
+
+
 def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | None = None,
                     thresholds: np.ndarray | None = None) -> np.ndarray:
     """Start values for theta from a (pooled) covariance matrix, mean vector and (ordinal items) thresholds."""
-    lat_ix = {n: i for i, n in enumerate(table.latent)}
-    obs_ix = {n: i for i, n in enumerate(table.observed)}
+    plan = table.start_plan
+    m = len(table.latent)
     sd = np.sqrt(np.clip(np.diag(S), 1e-12, None))
     R = S / np.outer(sd, sd)
-
-    by_factor_obs: dict[str, list[str]] = {f: [] for f in table.latent}
-    by_factor_lat: dict[str, list[str]] = {f: [] for f in table.latent}
-    fixed_var: dict[str, float] = {}
-    fixed_load: dict[str, tuple[str, float]] = {}
-    endogenous: set[str] = set()
-    for par in table.parameters:
-        if par.kind == "loading":
-            f, x = par.variables
-            (by_factor_lat if par.matrix == "B" else by_factor_obs)[f].append(x)
-            if par.matrix == "B":
-                endogenous.add(x)
-            if not par.free and par.offset != 0.0 and f not in fixed_load:
-                fixed_load[f] = (x, par.offset)
-        elif par.kind == "factor_variance" and not par.free:
-            fixed_var[par.variables[0]] = par.offset
-
-    std_loading: dict[tuple[str, str], float] = {}
-    n_factors_of: dict[str, int] = {}
-    for items in by_factor_obs.values():
-        for x in items:
-            n_factors_of[x] = n_factors_of.get(x, 0) + 1
-    total_var: dict[str, float] = {}
-    mean_std: dict[str, float] = {}
-    for f, items in by_factor_obs.items():
-        if not items:
-            continue
-        ix = [obs_ix[x] for x in items]
-        if len(ix) == 1:
-            l_std = np.array([0.9])
+    std_loading = np.zeros((m, len(sd)))
+    mean_std = np.full(m, np.nan)
+    total_var = np.full(m, np.nan)
+    for b in plan.blocks:
+        ix = b.items
+        l_std = _principal_axes(R[ix[:, :, None], ix[:, None, :]]) if ix.shape[1] > 1 else np.full(ix.shape, 0.9)
+        # an item that loads on several factors shares its common variance among them
+        std = l_std / b.share
+        std_loading[b.factors[:, None], ix] = std
+        mean_std[b.factors] = l_std.mean(axis=1)
+        raw = std * sd[ix]
+        marker = raw[np.arange(len(ix)), b.position] / np.where(b.rule == 1, b.value, 1.0)
+        total_var[b.factors] = np.where(b.rule == 0, b.value, np.where(b.rule == 1, marker, raw.mean(axis=1)) ** 2)
+    for g, lower, rule in plan.higher:
+        if rule[0] == "variance":
+            total_var[g] = rule[1]
+        elif rule[0] == "marker":
+            total_var[g] = 0.5 * total_var[rule[1]] / rule[2] ** 2
         else:
-            l_std = _principal_axis(R[np.ix_(ix, ix)])
-        for x, l in zip(items, l_std):
-            # an item that loads on several factors shares its common variance among them
-            std_loading[(f, x)] = float(l) / np.sqrt(n_factors_of[x])
-        mean_std[f] = float(np.mean(l_std))
-        raw = {x: std_loading[(f, x)] * sd[obs_ix[x]] for x in items}
-        if f in fixed_var and f not in endogenous:
-            total_var[f] = fixed_var[f]
-        elif f in fixed_var:
-            total_var[f] = 2.0 * fixed_var[f]
-        elif f in fixed_load and fixed_load[f][0] in raw:
-            x, c = fixed_load[f]
-            total_var[f] = (raw[x] / c) ** 2
-        else:
-            total_var[f] = float(np.mean(list(raw.values()))) ** 2
+            total_var[g] = 0.5 * total_var[list(lower)].mean()
+        mean_std[g] = np.sqrt(0.5)
+    total_var = np.where(np.isnan(total_var), 1.0, total_var)
 
-    # higher-order factors, lowest level first
-    pending = [f for f in table.latent if by_factor_lat[f]]
-    for _ in range(len(pending) + 1):
-        for g in list(pending):
-            lower = by_factor_lat[g]
-            if not all(h in total_var for h in lower):
-                continue
-            if g in fixed_var:
-                total_var[g] = fixed_var[g]
-            elif g in fixed_load and fixed_load[g][0] in total_var:
-                h, c = fixed_load[g]
-                total_var[g] = 0.5 * total_var[h] / c**2
-            else:
-                total_var[g] = 0.5 * float(np.mean([total_var[h] for h in lower]))
-            mean_std[g] = float(np.sqrt(0.5))
-            pending.remove(g)
-
-    explained_of: dict[str, float] = {}  # each item's share of variance explained by its factors
-    for (f, y), v in std_loading.items():
-        explained_of[y] = explained_of.get(y, 0.0) + v * v
     target = np.zeros(len(table.parameters))
-    for e, par in enumerate(table.parameters):
-        if par.kind == "loading":
-            f, x = par.variables
-            vf = total_var.get(f, 1.0)
-            if par.matrix == "L":
-                target[e] = std_loading.get((f, x), 0.7) * sd[obs_ix[x]] / np.sqrt(vf)
-            else:
-                target[e] = np.sqrt(0.5 * total_var.get(x, 1.0) / vf)
-        elif par.kind == "factor_variance":
-            f = par.variables[0]
-            target[e] = total_var.get(f, 1.0) * (0.5 if f in endogenous else 1.0)
-        elif par.kind == "factor_covariance":
-            a, b = par.variables
-            target[e] = _factor_correlation(a, b, by_factor_obs, obs_ix, R, mean_std) * np.sqrt(
-                total_var.get(a, 1.0) * total_var.get(b, 1.0)
-            )
-        elif par.kind == "residual_variance":
-            x = par.variables[0]
-            explained = min(explained_of[x], 0.9) if x in explained_of else 0.5
-            target[e] = S[obs_ix[x], obs_ix[x]] * (1.0 - explained)
-        elif par.kind == "intercept" and means is not None:
-            target[e] = means[obs_ix[par.variables[0]]]
-        elif par.kind == "threshold" and thresholds is not None:
-            target[e] = thresholds[par.row]
-        # residual covariances and factor means start at zero
+    e, f, x = plan.loads
+    target[e] = std_loading[f, x] * sd[x] / np.sqrt(total_var[f])
+    e, f, x = plan.paths
+    target[e] = np.sqrt(0.5 * total_var[x] / total_var[f])
+    e, f = plan.variances
+    target[e] = total_var[f] * np.where(plan.endogenous[f], 0.5, 1.0)
+    e, a, b = plan.covariances
+    if len(e):
+        # mean cross-correlation of the two factors' items over the mean loadings (Spearman's correction)
+        mean_r = (plan.mean_weights @ R @ plan.mean_weights.T)[a, b]
+        with np.errstate(invalid="ignore"):
+            r = np.clip(mean_r / (mean_std[a] * mean_std[b]), -0.9, 0.9)
+        target[e] = np.where(np.isnan(r), 0.0, r) * np.sqrt(total_var[a] * total_var[b])
+    e, x = plan.residuals
+    explained = np.minimum((std_loading**2).sum(axis=0), 0.9)
+    target[e] = S[x, x] * (1.0 - np.where(plan.has_factor[x], explained[x], 0.5))
+    if means is not None:
+        e, x = plan.intercepts
+        target[e] = means[x]
+    if thresholds is not None:
+        e, k = plan.thresholds
+        target[e] = thresholds[k]
 
-    J, offset = table.mapping()
-    theta = _least_squares(J, target - offset)
+    theta = plan.solve @ (target - table.mapping()[1])
     given = ~np.isnan(table.start)
     theta[given] = table.start[given]
     return np.clip(theta, table.lower, table.upper)
 
 
-def _least_squares(J: np.ndarray, y: np.ndarray) -> np.ndarray:
-    """theta minimising |J theta - y|: by the normal equations (J'J is nearly diagonal here), else by SVD."""
-    try:
-        return np.linalg.solve(J.T @ J, J.T @ y)
-    except np.linalg.LinAlgError:
-        return np.linalg.lstsq(J, y, rcond=None)[0]
-
-
-def _principal_axis(R: np.ndarray) -> np.ndarray:
-    """One-factor principal-axis loadings, squared multiple correlations as communalities."""
+def _principal_axes(R: np.ndarray) -> np.ndarray:
+    """One-factor principal-axis loadings of a stack of correlation matrices (k, n, n), with squared
+    multiple correlations as communalities; shape (k, n)."""
     reduced = R.copy()
     try:
-        smc = 1.0 - 1.0 / np.diag(np.linalg.inv(R))
+        smc = 1.0 - 1.0 / np.diagonal(np.linalg.inv(R), axis1=1, axis2=2)
     except np.linalg.LinAlgError:
-        smc = np.full(len(R), 0.5)
-    reduced[np.diag_indices_from(reduced)] = np.clip(smc, 0.05, 0.95)
+        smc = np.full(R.shape[:2], 0.5)
+    n = R.shape[1]
+    reduced[:, np.arange(n), np.arange(n)] = np.clip(smc, 0.05, 0.95)
     vals, vecs = np.linalg.eigh(reduced)
-    v = vecs[:, -1] * (np.sign(vecs[:, -1].sum()) or 1.0)
-    return np.clip(v * np.sqrt(max(vals[-1], 0.05)), 0.2, 0.95)
-
-
-def _factor_correlation(a, b, by_factor_obs, obs_ix, R, mean_std) -> float:
-    ia = [obs_ix[x] for x in by_factor_obs.get(a, [])]
-    ib = [obs_ix[x] for x in by_factor_obs.get(b, [])]
-    if not ia or not ib or a not in mean_std or b not in mean_std:
-        return 0.0
-    r = float(np.mean(R[np.ix_(ia, ib)])) / (mean_std[a] * mean_std[b])
-    return float(np.clip(r, -0.9, 0.9))
+    v = vecs[:, :, -1]
+    sign = np.sign(v.sum(axis=1))
+    v = v * np.where(sign == 0, 1.0, sign)[:, None]
+    return np.clip(v * np.sqrt(np.maximum(vals[:, -1], 0.05))[:, None], 0.2, 0.95)
