@@ -20,30 +20,24 @@ def standardize_entries(mats: ModelMatrices, codes: np.ndarray, rows: np.ndarray
     sigma = mats.implied_covariance()
     obs_sd = np.sqrt(np.clip(np.diag(sigma), 1e-300, None))
     theta_sd = np.sqrt(np.abs(np.diag(mats.T)))
-    full = np.empty_like(values)
-    lat = np.empty_like(values)
-    for e, (code, r, c, v) in enumerate(zip(codes, rows, cols, values)):
-        if code == 0:  # observed r on factor c
-            lat[e] = v * latent_sd[c]
-            full[e] = v * latent_sd[c] / obs_sd[r]
-        elif code == 1:  # factor r on factor c
-            lat[e] = full[e] = v * latent_sd[c] / latent_sd[r]
-        elif code == 2:
-            lat[e] = full[e] = v / (latent_sd[r] * latent_sd[c])
-        elif code == 4:  # intercept of observed r
-            lat[e] = v
-            full[e] = v / obs_sd[r]
-        elif code == 5:  # mean of factor r
-            lat[e] = full[e] = v / latent_sd[r]
-        elif code == 6:  # a threshold: its item is not known here, so the caller standardizes it
-            lat[e] = full[e] = v
-        else:
-            lat[e] = v
-            if r == c:
-                full[e] = v / sigma[r, r]
-            else:
-                den = theta_sd[r] * theta_sd[c]
-                full[e] = v / den if den > 0 else np.nan
+    lat = np.array(values, dtype=float)  # thresholds stay as they are: their item is not known here
+    full = lat.copy()
+    k = codes == 0  # observed r on factor c
+    lat[k] = values[k] * latent_sd[cols[k]]
+    full[k] = lat[k] / obs_sd[rows[k]]
+    k = codes == 1  # factor r on factor c
+    full[k] = lat[k] = values[k] * latent_sd[cols[k]] / latent_sd[rows[k]]
+    k = codes == 2
+    full[k] = lat[k] = values[k] / (latent_sd[rows[k]] * latent_sd[cols[k]])
+    k = codes == 4  # intercept of observed r
+    full[k] = values[k] / obs_sd[rows[k]]
+    k = codes == 5  # mean of factor r
+    full[k] = lat[k] = values[k] / latent_sd[rows[k]]
+    k = (codes == 3) & (rows == cols)
+    full[k] = values[k] / sigma[rows[k], rows[k]]
+    k = (codes == 3) & (rows != cols)
+    den = theta_sd[rows[k]] * theta_sd[cols[k]]
+    full[k] = np.where(den > 0, values[k] / np.where(den > 0, den, 1.0), np.nan)
     return full, lat
 
 

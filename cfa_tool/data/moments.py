@@ -34,7 +34,8 @@ def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) ->
     if all(c.dtype.kind in "biuf" for c in selected):  # already numbers: copy them in (a sub-frame costs more)
         out = np.empty((len(frame), len(names)))
         for j, column in enumerate(selected):
-            out[:, j] = column.to_numpy(dtype=float, na_value=np.nan)
+            # numpy columns copy straight in; nullable (extension) columns turn their missing marker into NaN
+            out[:, j] = column.to_numpy() if isinstance(column.dtype, np.dtype) else column.to_numpy(dtype=float, na_value=np.nan)
         return out
     columns = []
     for name, column in zip(names, selected):
@@ -65,10 +66,16 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> n
 def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], source: str) -> None:
     """Constant columns and exactly collinear columns are errors that name the columns."""
     sds = np.sqrt(np.clip(np.diag(cov), 0.0, None))
-    for j, sd in enumerate(sds):
-        if sd <= 1e-12 * max(1.0, abs(means[j])):
-            raise DataError(f"{source}: column '{names[j]}' has the same value ({means[j]:g}) in every row used, so it carries no information")
+    constant = np.flatnonzero(sds <= 1e-12 * np.maximum(1.0, np.abs(means)))
+    if len(constant):
+        j = constant[0]
+        raise DataError(f"{source}: column '{names[j]}' has the same value ({means[j]:g}) in every row used, so it carries no information")
     corr = cov / np.outer(sds, sds)
+    try:  # a column that is an exact combination of earlier ones has (next to) no variance left given them
+        if np.diagonal(np.linalg.cholesky(corr)).min() ** 2 > 1e-8:
+            return
+    except np.linalg.LinAlgError:
+        pass
     vals, vecs = np.linalg.eigh(corr)
     if vals[0] < 1e-10:
         weights = np.abs(vecs[:, 0])
@@ -82,6 +89,8 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
 def _row_numbers(frame: pd.DataFrame) -> np.ndarray:
     """1-based data-row numbers: from the index when it counts rows (files, filtered files), else positions."""
     index = frame.index
+    if isinstance(index, pd.RangeIndex) and index.start >= 0 and index.step == 1:  # the common case, without type checks
+        return np.arange(index.start + 1, index.stop + 1)
     if pd.api.types.is_integer_dtype(index) and index.is_unique and len(index) and index.min() >= 0:
         return np.asarray(index, dtype=int) + 1
     return np.arange(1, len(frame) + 1)

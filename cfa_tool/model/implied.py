@@ -45,16 +45,29 @@ class ModelMatrices:
         return self.L if not self.B.any() else self.L @ self.A
 
     def latent_covariance(self) -> np.ndarray:
-        """Total (co)variances of the factors: A P A'."""
+        """Total (co)variances of the factors: A P A' (read-only; computed once)."""
+        return self._latent_covariance
+
+    @cached_property
+    def _latent_covariance(self) -> np.ndarray:
         A = self.A
-        return A @ self.P @ A.T
+        out = self.P.copy() if not self.B.any() else A @ self.P @ A.T
+        out.setflags(write=False)
+        return out
 
     def latent_means(self) -> np.ndarray:
         return self.A @ self.M
 
     def implied_covariance(self) -> np.ndarray:
+        """Sigma = G P G' + T (read-only; computed once)."""
+        return self._implied_covariance
+
+    @cached_property
+    def _implied_covariance(self) -> np.ndarray:
         G = self.G
-        return G @ self.P @ G.T + self.T
+        out = G @ self.P @ G.T + self.T
+        out.setflags(write=False)
+        return out
 
     def implied_mean(self) -> np.ndarray:
         return self.N + self.G @ self.M
