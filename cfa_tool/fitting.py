@@ -184,6 +184,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     yuan_bentler = options.test == "yuan-bentler"
     if robust_wanted and any(gm.rows is None for gm in likelihood.groups):
         raise OptionError("the Satorra-Bentler test needs the raw data rows, not only a covariance matrix")
+    group_srmr = [srmr_value(gm.covariance, mats[g].implied_covariance()) for g, gm in enumerate(likelihood.groups)]
     if est.converged:
         evaluation = likelihood.evaluate(theta)
         information = evaluation.information
@@ -193,10 +194,10 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             dev = gm.mean - mats[g].implied_mean() if means else None
             per_group.append((gm.covariance, mats[g].implied_covariance(), gm.n_obs, dev))
         if likelihood.complete_data:
-            fit = fit_indices(per_group, est.value, table.n_free, means)
+            fit = fit_indices(per_group, est.value, table.n_free, means, group_srmr=group_srmr)
         else:
             fit = fit_indices(per_group, est.value, table.n_free, means, log_likelihood=fiml_log_likelihood(likelihood, theta),
-                              baseline=fiml_baseline(likelihood))
+                              baseline=fiml_baseline(likelihood), group_srmr=group_srmr)
         if robust_wanted:
             cov_theta, trace_ug = robust_parts(model, theta, likelihood)
             robust = robust_fit(fit.chi_square, fit.df, trace_ug, fit.baseline_chi_square, fit.baseline_df,
@@ -240,7 +241,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 label=label,
                 data=_summary(m, table.observed, gm),
                 chi_square=share,
-                srmr=srmr_value(gm.covariance, sigma) if est.converged else None,
+                srmr=group_srmr[g] if est.converged else None,
                 r_squared=dict(zip(table.observed, (float(v) for v in r_squared(mats[g])))),
                 sample_covariance=gm.covariance,
                 implied_covariance=sigma,

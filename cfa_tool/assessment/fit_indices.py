@@ -55,9 +55,12 @@ def chi_square_p(chi_square: float, df: int) -> float:
     return float(dist.chi2_sf(chi_square, df))
 
 
-def noncentrality_bound(chi_square: float, df: int, probability: float) -> float:
-    """lambda such that P(chi2_df(lambda) <= chi_square) = probability (0 if none)."""
-    f = lambda lam: dist.ncx2_cdf(chi_square, df, lam) - probability if lam > 0 else dist.chi2_cdf(chi_square, df) - probability
+def noncentrality_bound(chi_square: float, df: int, probability: float, central_cdf: float | None = None) -> float:
+    """lambda such that P(chi2_df(lambda) <= chi_square) = probability (0 if none); ``central_cdf`` is
+    P(chi2_df <= chi_square) when the caller has it."""
+    if central_cdf is None:
+        central_cdf = float(dist.chi2_cdf(chi_square, df))
+    f = lambda lam: dist.ncx2_cdf(chi_square, df, lam) - probability if lam > 0 else central_cdf - probability
     if f(0.0) < 0:
         return 0.0
     direct = dist.ncx2_noncentrality(chi_square, df, probability)  # the inverse in closed numerical form
@@ -77,8 +80,9 @@ def rmsea_interval(chi_square: float, df: int, n_obs: int, level: float = 0.90) 
     if df <= 0:
         return (float("nan"), float("nan"))
     tail = (1.0 - level) / 2.0
-    lam_low = noncentrality_bound(chi_square, df, 1.0 - tail)
-    lam_high = noncentrality_bound(chi_square, df, tail)
+    central = float(dist.chi2_cdf(chi_square, df))
+    lam_low = noncentrality_bound(chi_square, df, 1.0 - tail, central)
+    lam_high = noncentrality_bound(chi_square, df, tail, central)
     scale = df * n_obs
     return (float(np.sqrt(lam_low / scale)), float(np.sqrt(lam_high / scale)))
 
@@ -136,11 +140,12 @@ def baseline_chi_square(S: np.ndarray, n_obs: int) -> tuple[float, int]:
 
 def fit_indices(groups: list[tuple[np.ndarray, np.ndarray, int, np.ndarray | None]], discrepancy: float, n_free: int,
                 mean_structure: bool = False, log_likelihood: float | None = None,
-                baseline: tuple[float, int] | None = None) -> FitIndices:
+                baseline: tuple[float, int] | None = None, group_srmr: list[float] | None = None) -> FitIndices:
     """Fit indices from each group's (S, Sigma, N_g, m - mu or None) and the minimised discrepancy.
 
     With incomplete data, S and m are the saturated (EM) estimates, and the caller gives the
     casewise log-likelihood and the baseline chi-square, which the moments alone do not determine.
+    ``group_srmr``: each group's SRMR, when the caller has computed them.
     """
     G = len(groups)
     p = groups[0][0].shape[0]
@@ -152,12 +157,12 @@ def fit_indices(groups: list[tuple[np.ndarray, np.ndarray, int, np.ndarray | Non
     base_df = 0
     loglik = 0.0
     srmr = 0.0
-    for S, sigma, n, dev in groups:
+    for g, (S, sigma, n, dev) in enumerate(groups):
         c, d = baseline_chi_square(S, n)
         base_chi += c
         base_df += d
         loglik += normal_log_likelihood(S, sigma, n, dev if mean_structure else None)
-        srmr += n / n_obs * srmr_value(S, sigma)
+        srmr += n / n_obs * (srmr_value(S, sigma) if group_srmr is None else group_srmr[g])
     if log_likelihood is not None:
         loglik = log_likelihood
     if baseline is not None:

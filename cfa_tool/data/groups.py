@@ -63,6 +63,8 @@ def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ..
 
 def pooled(moments: list[SampleMoments]) -> tuple[np.ndarray, np.ndarray]:
     """Pooled within-group covariance and grand mean (for starting values)."""
+    if len(moments) == 1:
+        return moments[0].covariance, moments[0].means
     n = sum(m.n_obs for m in moments)
     cov = sum(m.n_obs * m.covariance for m in moments) / n
     mean = sum(m.n_obs * m.means for m in moments) / n

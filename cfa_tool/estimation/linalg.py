@@ -11,7 +11,7 @@ import numpy as np
 
 
 def _scales(H: np.ndarray) -> np.ndarray:
-    return 1.0 / np.sqrt(np.clip(np.abs(np.diag(H)), 1e-300, None))
+    return 1.0 / np.sqrt(np.maximum(np.abs(H.diagonal()), 1e-300))
 
 
 def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) -> np.ndarray:
@@ -21,7 +21,7 @@ def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) 
         return np.array(b, dtype=float, copy=True)
     d = _scales(H)
     dd = d if b.ndim == 1 else d[:, None]
-    scaled = H * np.outer(d, d)
+    scaled = H * (d[:, None] * d)
     if positive_definite:
         np.linalg.cholesky(scaled)
     return dd * np.linalg.solve(scaled, dd * b)
@@ -29,7 +29,8 @@ def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) 
 
 def scaled_inverse(H: np.ndarray) -> np.ndarray:
     d = _scales(H)
-    return np.linalg.inv(H * np.outer(d, d)) * np.outer(d, d)
+    dd = d[:, None] * d
+    return np.linalg.inv(H * dd) * dd
 
 
 def difference_hessian(gradient, theta: np.ndarray, central: bool = True, base: np.ndarray | None = None,

@@ -79,7 +79,7 @@ def minimise(
                     step[inactive] = scaled_solve(current.information[np.ix_(inactive, inactive)], -g[inactive])
             except np.linalg.LinAlgError:
                 break
-            if not np.all(np.isfinite(step)):
+            if not np.isfinite(step).all():
                 break
             # Newton decrement g' H^-1 g: about twice the distance to the minimum of F, whatever the units
             decrement = float(-g[inactive] @ step[inactive])
@@ -107,7 +107,7 @@ def minimise(
         t = 1.0
         accepted = False
         for _ in range(40):
-            trial = np.clip(theta + t * step, lower, upper)
+            trial = np.minimum(np.maximum(theta + t * step, lower), upper)
             f = value(trial)
             if np.isfinite(f) and f <= current.value + 1e-4 * t * slope:
                 accepted = True
@@ -134,7 +134,7 @@ def _newton_from(H: np.ndarray, theta: np.ndarray, g: np.ndarray, idx: np.ndarra
         delta = -scaled_solve(H, g[idx], positive_definite=True)
     except np.linalg.LinAlgError:
         return None
-    if not np.all(np.isfinite(delta)):
+    if not np.isfinite(delta).all():
         return None
     step = np.zeros_like(theta)
     step[idx] = delta

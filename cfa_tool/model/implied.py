@@ -121,7 +121,8 @@ class StructuredModel:
         return self.offset + self.J @ theta
 
     def _layout(self, group: int) -> tuple:
-        """Where each entry of a group goes in one flat buffer holding L, B, P, T, N, M."""
+        """Where each entry of a group goes in one flat buffer holding L, B, P, T, N, M (entries of
+        symmetric matrices on both sides of the diagonal), and where each matrix lies in it."""
         p, m = self.p, self.m
         shapes = [(p, m), (m, m), (m, m), (p, p), (p,), (m,)]
         starts = np.concatenate([[0], np.cumsum([int(np.prod(s)) for s in shapes])])
@@ -131,15 +132,16 @@ class StructuredModel:
         flat = starts[np.minimum(codes, 5)] + np.where(codes >= 4, rows, rows * width + cols)
         mirror = in_moments & np.isin(codes, (2, 3)) & (rows != cols)
         flat_mirror = starts[np.minimum(codes, 5)] + cols * width + rows
-        return (shapes, starts, np.flatnonzero(in_moments), flat[in_moments], np.flatnonzero(mirror), flat_mirror[mirror])
+        take = np.concatenate([np.flatnonzero(in_moments), np.flatnonzero(mirror)])
+        at = np.concatenate([flat[in_moments], flat_mirror[mirror]])
+        pieces = tuple((int(starts[k]), int(starts[k + 1]), shape) for k, shape in enumerate(shapes))
+        return int(starts[-1]), take, at, pieces
 
     def matrices(self, theta: np.ndarray, group: int = 0) -> ModelMatrices:
-        values = self._offset[group] + self._J[group] @ theta
-        shapes, starts, take, at, take_mirror, at_mirror = self._layouts[group]
-        buffer = np.zeros(starts[-1])
-        buffer[at] = values[take]
-        buffer[at_mirror] = values[take_mirror]
-        return ModelMatrices(*(buffer[starts[k]:starts[k + 1]].reshape(shape) for k, shape in enumerate(shapes)))
+        size, take, at, pieces = self._layouts[group]
+        buffer = np.zeros(size)
+        buffer[at] = (self._offset[group] + self._J[group] @ theta)[take]
+        return ModelMatrices(*[buffer[a:b].reshape(shape) for a, b, shape in pieces])
 
     def thresholds(self, theta: np.ndarray, group: int = 0) -> np.ndarray:
         """Thresholds of the ordinal items (matrix K), stacked item by item."""

@@ -86,15 +86,18 @@ def entry_basis(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, p: int, m
 
 def basis_vectors(mats, means: bool) -> tuple[np.ndarray, np.ndarray]:
     """(V = [I, C', G], a = A M) at a group's model matrices (a is zero without a mean structure)."""
-    G, A = mats.G, mats.A
-    C = A @ mats.P @ G.T
+    G = mats.G
+    higher_order = mats.B.any()
+    PG = mats.P @ G.T
+    C = mats.A @ PG if higher_order else PG
     p, m = G.shape
-    V = np.empty((p, p + 2 * m))
-    V[:, :p] = np.eye(p)
+    V = np.zeros((p, p + 2 * m))
+    V.ravel()[::p + 2 * m + 1] = 1.0  # the identity block
     V[:, p:p + m] = C.T
     V[:, p + m:] = G
-    a = A @ mats.M if means else np.zeros(m)
-    return V, a
+    if not means:
+        return V, np.zeros(m)
+    return V, (mats.A @ mats.M if higher_order else mats.M)
 
 
 def mean_coefficients(basis: EntryBasis, a: np.ndarray) -> np.ndarray:
