@@ -8,6 +8,27 @@ not badly conditioned; scaling it to unit diagonal first removes that.
 from __future__ import annotations
 
 import numpy as np
+from scipy.linalg import lapack  # direct LAPACK calls: numpy.linalg's checks cost more than small factorisations
+
+
+def cholesky_lower(A: np.ndarray) -> np.ndarray | None:
+    """Lower Cholesky factor of a symmetric matrix, or None when it is not positive definite."""
+    factor, info = lapack.dpotrf(A, lower=1, clean=1)
+    return factor if info == 0 and np.isfinite(factor).all() else None
+
+
+def spd_inverse(A: np.ndarray) -> tuple[np.ndarray, float] | None:
+    """(A^-1, log|A|) of a symmetric positive-definite matrix from its Cholesky factor (exactly
+    symmetric), or None when A is not positive definite."""
+    factor = cholesky_lower(A)
+    if factor is None:
+        return None
+    lower, info = lapack.dpotri(factor, lower=1)
+    if info != 0:
+        return None
+    inverse = lower + lower.T  # dpotri fills the lower triangle; the factor's upper one is zero
+    inverse.ravel()[:: len(A) + 1] *= 0.5
+    return inverse, 2.0 * float(np.log(factor.diagonal()).sum())
 
 
 def _scales(H: np.ndarray) -> np.ndarray:
@@ -22,15 +43,19 @@ def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) 
     d = _scales(H)
     dd = d if b.ndim == 1 else d[:, None]
     scaled = H * (d[:, None] * d)
+    _, x, info = lapack.dposv(scaled, dd * b, lower=1)  # Cholesky first: information matrices are positive definite
+    if info == 0:
+        return dd * x
     if positive_definite:
-        np.linalg.cholesky(scaled)
+        raise np.linalg.LinAlgError("the matrix is not positive definite")
     return dd * np.linalg.solve(scaled, dd * b)
 
 
 def scaled_inverse(H: np.ndarray) -> np.ndarray:
     d = _scales(H)
     dd = d[:, None] * d
-    return np.linalg.inv(H * dd) * dd
+    found = spd_inverse(H * dd)
+    return (found[0] if found is not None else np.linalg.inv(H * dd)) * dd
 
 
 def difference_hessian(gradient, theta: np.ndarray, central: bool = True, base: np.ndarray | None = None,

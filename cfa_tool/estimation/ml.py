@@ -14,6 +14,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from cfa_tool.estimation.linalg import cholesky_lower, spd_inverse
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, entry_basis, gradient_and_information,
                                      second_derivative_contraction)
@@ -28,12 +29,11 @@ class Evaluation:
 
 def log_det_pd(matrix: np.ndarray) -> float | None:
     """log-determinant of a positive-definite matrix, or None if it is not."""
-    try:
-        c = np.linalg.cholesky(matrix)
-    except np.linalg.LinAlgError:
+    c = cholesky_lower(matrix)
+    if c is None:
         return None
-    d = np.diag(c)
-    if np.any(d <= 0) or not np.all(np.isfinite(d)):
+    d = c.diagonal()
+    if np.any(d <= 0):
         return None
     return 2.0 * float(np.sum(np.log(d)))
 
@@ -52,10 +52,9 @@ class NormalParts:
     """One group's pieces of the complete-data discrepancy at theta, from which
     :mod:`cfa_tool.model.rank_two` differentiates it along any direction."""
 
-    def __init__(self, chol: np.ndarray, sigma_inv: np.ndarray, M: np.ndarray, mean_gradient: np.ndarray | None,
+    def __init__(self, sigma_inv: np.ndarray, M: np.ndarray, mean_gradient: np.ndarray | None,
                  value: float):
         self.value = value  # this group's discrepancy
-        self.chol = chol
         self.sigma_inv = sigma_inv
         self.M = M  # Sigma^-1 (Sigma - S - d d') Sigma^-1
         self.mean_gradient = mean_gradient  # -2 Sigma^-1 d, or None without a mean structure
@@ -112,15 +111,10 @@ class NormalLikelihood:
     def _compute_state(self, theta: np.ndarray, g: int):
         mats = self.model.matrices(theta, g)
         sigma = mats.implied_covariance()
-        try:  # numpy rather than scipy.linalg here: importing scipy.linalg costs the command's start-up time
-            chol = np.linalg.cholesky(sigma)
-        except np.linalg.LinAlgError:
+        found = spd_inverse(sigma)
+        if found is None or not np.isfinite(found[1]):
             return None
-        log_det = 2.0 * float(np.log(np.diagonal(chol)).sum())
-        if not np.isfinite(log_det):
-            return None
-        chol_inv = np.linalg.inv(chol)
-        sigma_inv = chol_inv.T @ chol_inv
+        sigma_inv, log_det = found
         S = self.groups[g].covariance
         mean_gradient = None
         value = log_det + float(np.vdot(sigma_inv, S)) - self.logdet_S[g] - self.p
@@ -130,7 +124,7 @@ class NormalLikelihood:
             target -= np.outer(dev, dev)
             mean_gradient = -2.0 * sigma_inv @ dev
             value += float(dev @ sigma_inv @ dev)
-        return [mats, NormalParts(chol, sigma_inv, sigma_inv @ target @ sigma_inv, mean_gradient, value), None]
+        return [mats, NormalParts(sigma_inv, sigma_inv @ target @ sigma_inv, mean_gradient, value), None]
 
     def _rank_two(self, theta: np.ndarray, g: int, with_information: bool = True):
         """(mats, parts, gradient and information over the group's active entries, K, Q) or None."""
