@@ -21,7 +21,9 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass
 
 import numpy as np
+
 from cfa_tool import distributions as dist
+from cfa_tool.estimation.linalg import spd_inverse
 
 
 @dataclass(frozen=True)
@@ -116,26 +118,31 @@ def tli_value(chi_square: float, df: int, base_chi: float, base_df: int) -> floa
 
 
 def srmr_value(S: np.ndarray, sigma: np.ndarray) -> float:
-    sd = np.sqrt(np.diag(S))
-    resid = (S - sigma) / np.outer(sd, sd)
-    lower = resid[np.tril_indices_from(resid)]
-    return float(np.sqrt(np.mean(lower**2)))
+    inv_sd = 1.0 / np.sqrt(S.diagonal())
+    resid = (S - sigma) * (inv_sd[:, None] * inv_sd)
+    squares = resid * resid
+    p = len(S)  # the mean over i <= j: half the off-diagonal squares plus the diagonal ones
+    return float(np.sqrt((squares.sum() + squares.diagonal().sum()) / (p * (p + 1))))
 
 
 def normal_log_likelihood(S: np.ndarray, sigma: np.ndarray, n_obs: int, mean_dev: np.ndarray | None = None) -> float:
     """Log-likelihood of the normal model, divisor-N S; means saturated unless ``mean_dev`` (m - mu) is given."""
     p = S.shape[0]
-    _, logdet = np.linalg.slogdet(sigma)
-    trace = float(np.trace(np.linalg.solve(sigma, S)))
+    found = spd_inverse(sigma)
+    if found is None:
+        return float("nan")
+    inverse, logdet = found
+    trace = float(np.vdot(inverse, S))
     if mean_dev is not None:
-        trace += float(mean_dev @ np.linalg.solve(sigma, mean_dev))
+        trace += float(mean_dev @ inverse @ mean_dev)
     return float(-0.5 * n_obs * (p * np.log(2 * np.pi) + logdet + trace))
 
 
 def baseline_chi_square(S: np.ndarray, n_obs: int) -> tuple[float, int]:
     p = S.shape[0]
-    _, logdet = np.linalg.slogdet(S)
-    return float(n_obs * (np.sum(np.log(np.diag(S))) - logdet)), p * (p - 1) // 2
+    found = spd_inverse(S)
+    logdet = found[1] if found is not None else np.linalg.slogdet(S)[1]
+    return float(n_obs * (np.log(S.diagonal()).sum() - logdet)), p * (p - 1) // 2
 
 
 def fit_indices(groups: list[tuple[np.ndarray, np.ndarray, int, np.ndarray | None]], discrepancy: float, n_free: int,

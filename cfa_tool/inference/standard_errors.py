@@ -39,11 +39,10 @@ def parameter_covariance(information: np.ndarray, n_obs: int) -> np.ndarray:
 
 def wald_inference(values: np.ndarray, J: np.ndarray, cov_theta: np.ndarray, level: float = 0.95) -> Inference:
     """SE, z, two-sided p and Wald interval for each entry; fixed entries get NaN."""
-    var = np.sum((J @ cov_theta) * J, axis=1)
-    free = np.any(J != 0, axis=1)
-    se = np.where(free, np.sqrt(np.clip(var, 0.0, None)), np.nan)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        z = np.where(free & (se > 0), values / se, np.nan)
-    p = np.where(np.isfinite(z), 2.0 * dist.norm_sf(np.abs(z)), np.nan)
+    var = ((J @ cov_theta) * J).sum(axis=1)
+    free = (J != 0).any(axis=1)
+    se = np.where(free, np.sqrt(np.maximum(var, 0.0)), np.nan)
+    z = np.divide(values, se, out=np.full(len(se), np.nan), where=free & (se > 0))
+    p = 2.0 * dist.norm_sf(np.abs(z))  # NaN where z is
     crit = dist.norm_ppf(0.5 + level / 2.0)
     return Inference(se, z, p, values - crit * se, values + crit * se)
