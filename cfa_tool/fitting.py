@@ -86,6 +86,8 @@ class Estimation:
 
 
 def ordered_moments(moments: SampleMoments, observed: tuple[str, ...]) -> GroupMoments:
+    if tuple(moments.names) == tuple(observed):
+        return GroupMoments(moments.covariance, moments.means, moments.n_obs, moments.rows)
     order = [moments.names.index(n) for n in observed]
     rows = moments.rows[:, order] if moments.rows is not None else None
     return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs, rows)
@@ -106,8 +108,10 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
         likelihood = NormalLikelihood(model, moments)
     if start is None or len(start) != table.n_free:
         cov, mean = pooled([m for _, m in groups])
-        order = [groups[0][1].names.index(n) for n in table.observed]
-        start = starting_values(table, cov[np.ix_(order, order)], mean[order])
+        if tuple(groups[0][1].names) != table.observed:
+            order = [groups[0][1].names.index(n) for n in table.observed]
+            cov, mean = cov[np.ix_(order, order)], mean[order]
+        start = starting_values(table, cov, mean)
     opt = minimise(likelihood.evaluate, likelihood.value, start, table.lower, table.upper, options.max_iterations,
                    gradient=likelihood.gradient, hessian=getattr(likelihood, "observed_hessian", None))
     return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, opt.message)

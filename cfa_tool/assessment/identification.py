@@ -50,8 +50,8 @@ def check_information_rank(information: np.ndarray, labels: tuple[str, ...]) -> 
     """Raise if the information matrix is (numerically) singular, naming the parameters involved."""
     if information.size == 0:
         return
-    scale = np.sqrt(np.clip(np.diag(information), 1e-300, None))
-    normalised = information / np.outer(scale, scale)
+    inv_scale = 1.0 / np.sqrt(np.maximum(information.diagonal(), 1e-300))
+    normalised = information * (inv_scale[:, None] * inv_scale)
     vals = np.linalg.eigvalsh(normalised)  # eigenvalues only: the vectors are needed only to name a culprit
     if vals[0] > 1e-9 * max(vals[-1], 1.0):
         return

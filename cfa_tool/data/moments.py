@@ -12,6 +12,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.errors import DataError
+from cfa_tool.estimation.linalg import cholesky_lower
 
 
 @dataclass(frozen=True)
@@ -71,11 +72,10 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
         j = constant[0]
         raise DataError(f"{source}: column '{names[j]}' has the same value ({means[j]:g}) in every row used, so it carries no information")
     corr = cov / np.outer(sds, sds)
-    try:  # a column that is an exact combination of earlier ones has (next to) no variance left given them
-        if np.diagonal(np.linalg.cholesky(corr)).min() ** 2 > 1e-8:
-            return
-    except np.linalg.LinAlgError:
-        pass
+    # a column that is an exact combination of earlier ones has (next to) no variance left given them
+    factor = cholesky_lower(corr)
+    if factor is not None and factor.diagonal().min() ** 2 > 1e-8:
+        return
     vals, vecs = np.linalg.eigh(corr)
     if vals[0] < 1e-10:
         weights = np.abs(vecs[:, 0])
