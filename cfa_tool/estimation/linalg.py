@@ -20,15 +20,18 @@ def cholesky_lower(A: np.ndarray) -> np.ndarray | None:
 def spd_inverse(A: np.ndarray) -> tuple[np.ndarray, float] | None:
     """(A^-1, log|A|) of a symmetric positive-definite matrix from its Cholesky factor (exactly
     symmetric), or None when A is not positive definite."""
-    factor = cholesky_lower(A)
-    if factor is None:
+    factor, info = lapack.dpotrf(A, lower=1, clean=1)
+    if info != 0:
+        return None
+    log_det = 2.0 * float(np.log(factor.diagonal()).sum())
+    if not np.isfinite(log_det):  # NaN anywhere in A reaches the factor's diagonal
         return None
     lower, info = lapack.dpotri(factor, lower=1)
     if info != 0:
         return None
     inverse = lower + lower.T  # dpotri fills the lower triangle; the factor's upper one is zero
     inverse.ravel()[:: len(A) + 1] *= 0.5
-    return inverse, 2.0 * float(np.log(factor.diagonal()).sum())
+    return inverse, log_det
 
 
 def _scales(H: np.ndarray) -> np.ndarray:

@@ -91,6 +91,8 @@ class NormalLikelihood:
         return np.inf if state is None else state[1].value
 
     def value(self, theta: np.ndarray) -> float:
+        if len(self.weights) == 1:
+            return self.group_discrepancy(theta, 0)
         return float(sum(w * self.group_discrepancy(theta, g) for g, w in enumerate(self.weights)))
 
     def _group_state(self, theta: np.ndarray, g: int):
@@ -112,7 +114,7 @@ class NormalLikelihood:
         mats = self.model.matrices(theta, g)
         sigma = mats.implied_covariance()
         found = spd_inverse(sigma)
-        if found is None or not np.isfinite(found[1]):
+        if found is None:
             return None
         sigma_inv, log_det = found
         S = self.groups[g].covariance
@@ -207,7 +209,9 @@ class NormalLikelihood:
             return None
         mats, parts, _, expected, K, Q = out
         cross = cross_term(self._basis[0], K, Q)
-        H = expected - cross - cross.T + second_derivative_contraction(model.second_orders[0], parts.M, mats.L, mats.P)
+        p, m = model.p, model.m  # Q = V' M V with V = [I, C', L] holds M L in its first rows
+        second = second_derivative_contraction(model.second_orders[0], parts.M, mats.L, mats.P, Q[:p, p + m:])
+        H = expected - cross - cross.T + second
         if not model.identity_J[0]:
             J = self._J[0]
             H = J.T @ H @ J

@@ -50,12 +50,17 @@ def minimise(
     iterations = 0
     previous_decrement = np.inf
     hessian_usable = None
+    bounded = bool(np.isfinite(lower).any() or np.isfinite(upper).any())
+    unbounded = np.zeros(len(theta), dtype=bool), np.ones(len(theta), dtype=bool), np.arange(len(theta))
     for iterations in range(1, max_iterations + 1):
         g = current.gradient
-        active = ((theta <= lower) & (g > 0)) | ((theta >= upper) & (g < 0))
-        inactive = ~active
-        free_all = not active.any()
-        idx = np.flatnonzero(inactive)
+        if bounded:
+            active = ((theta <= lower) & (g > 0)) | ((theta >= upper) & (g < 0))
+            inactive = ~active
+            idx = np.flatnonzero(inactive)
+        else:  # no bounds (the usual case): no parameter can be held at one
+            active, inactive, idx = unbounded
+        free_all = len(idx) == len(theta)
         newton = None
         if (hessian is not None and hessian_usable is not False
                 and NEAR_MINIMUM < previous_decrement < CLOSED_FORM_NEWTON_BELOW):
@@ -64,11 +69,15 @@ def minimise(
             hessian_usable = full is not None
             if full is not None:
                 newton = _newton_from(full if free_all else full[np.ix_(idx, idx)], theta, g, idx)
+        last_step = False
         if newton is not None:
             step = newton
-            decrement = float(-g[idx] @ step[idx])
+            decrement = float(-g @ step) if free_all else float(-g[idx] @ step[idx])
             if decrement < tolerance:
                 return OptimizerResult(theta, current.value, g, iterations - 1, True, "converged")
+            # Newton's decrement falls quadratically, d_next ~ d^3 / d_prev^2: when that is far below the
+            # tolerance, the full step ends the search without another solve to confirm it
+            last_step = free_all and decrement**3 < 1e-2 * tolerance * previous_decrement**2
             previous_decrement = decrement
         else:
             step = np.zeros_like(theta)
@@ -82,7 +91,7 @@ def minimise(
             if not np.isfinite(step).all():
                 break
             # Newton decrement g' H^-1 g: about twice the distance to the minimum of F, whatever the units
-            decrement = float(-g[inactive] @ step[inactive])
+            decrement = float(-g @ step) if free_all else float(-g[inactive] @ step[inactive])
             if decrement < tolerance:
                 return OptimizerResult(theta, current.value, g, iterations - 1, True, "converged")
             # scoring converges linearly when the model misfits: then switch to Newton near the minimum;
@@ -107,7 +116,7 @@ def minimise(
         t = 1.0
         accepted = False
         for _ in range(40):
-            trial = np.minimum(np.maximum(theta + t * step, lower), upper)
+            trial = np.minimum(np.maximum(theta + t * step, lower), upper) if bounded else theta + t * step
             f = value(trial)
             if np.isfinite(f) and f <= current.value + 1e-4 * t * slope:
                 accepted = True
@@ -119,6 +128,8 @@ def minimise(
         if new is None:
             break
         theta, current = trial, new
+        if last_step and t == 1.0:
+            return OptimizerResult(theta, current.value, current.gradient, iterations, True, "converged")
     return _quasi_newton(evaluate, value, theta, current, lower, upper, iterations, max_iterations)
 
 
@@ -130,12 +141,15 @@ NEAR_MINIMUM = 1e-8
 def _newton_from(H: np.ndarray, theta: np.ndarray, g: np.ndarray, idx: np.ndarray) -> np.ndarray | None:
     """Newton step over the free parameters idx with observed Hessian H; None when H is not
     positive definite (then scoring continues)."""
+    every = len(idx) == len(theta)
     try:
-        delta = -scaled_solve(H, g[idx], positive_definite=True)
+        delta = -scaled_solve(H, g if every else g[idx], positive_definite=True)
     except np.linalg.LinAlgError:
         return None
     if not np.isfinite(delta).all():
         return None
+    if every:
+        return delta
     step = np.zeros_like(theta)
     step[idx] = delta
     return step

@@ -192,12 +192,14 @@ def second_order_layout(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, p
     )
 
 
-def second_derivative_contraction(layout: SecondOrderLayout, M: np.ndarray, L: np.ndarray, P: np.ndarray) -> np.ndarray:
-    """tr(M d2Sigma / de de') for all pairs of the layout's entries (see :class:`SecondOrderLayout`)."""
+def second_derivative_contraction(layout: SecondOrderLayout, M: np.ndarray, L: np.ndarray, P: np.ndarray,
+                                  ML: np.ndarray | None = None) -> np.ndarray:
+    """tr(M d2Sigma / de de') for all pairs of the layout's entries (see :class:`SecondOrderLayout`);
+    ``ML`` is M L when the caller has it."""
     out = np.zeros(layout.size * layout.size)
     out[layout.load_load] = 2.0 * M.ravel()[layout.m_at] * P.ravel()[layout.p_at]
     if len(layout.load_cov):
-        ML = (M @ L).ravel()
+        ML = (M @ L if ML is None else ML).ravel()
         term = ML[layout.first] * layout.first_weight + ML[layout.second] * layout.second_weight
         out[layout.load_cov] = term
         out[layout.cov_load] = term

@@ -50,6 +50,8 @@ class StartPlan:
     intercepts: tuple[np.ndarray, np.ndarray]
     thresholds: tuple[np.ndarray, np.ndarray]  # (entries, position among the stacked thresholds)
     solve: np.ndarray  # (q, E): least-squares map from entry targets to theta
+    given: np.ndarray  # parameters with start values from the model
+    bounded: bool  # some parameter has a bound
 
 
 def start_plan(table: ParameterTable) -> StartPlan:
@@ -142,7 +144,8 @@ def start_plan(table: ParameterTable) -> StartPlan:
         solve = np.linalg.pinv(J)
     return StartPlan(tuple(blocks), tuple(higher), endogenous, mean_weights, n_factors > 0,
                      columns("L", 3), columns("B", 3), columns("var", 2), columns("cov", 3), columns("res", 2),
-                     columns("int", 2), columns("thr", 2), solve)
+                     columns("int", 2), columns("thr", 2), solve, np.flatnonzero(~np.isnan(table.start)),
+                     bool(np.isfinite(table.lower).any() or np.isfinite(table.upper).any()))
 
 
 def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | None = None,
@@ -179,20 +182,20 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     e, f, x = plan.loads
     target[e] = std_loading[f, x] * sd[x] / np.sqrt(total_var[f])
     e, f, x = plan.paths
-    target[e] = np.sqrt(0.5 * total_var[x] / total_var[f])
+    if len(e):
+        target[e] = np.sqrt(0.5 * total_var[x] / total_var[f])
     e, f = plan.variances
     target[e] = total_var[f] * np.where(plan.endogenous[f], 0.5, 1.0)
     e, a, b = plan.covariances
     if len(e):
         # mean cross-correlation of the two factors' items over the mean loadings (Spearman's correction)
         mean_r = (plan.mean_weights @ R @ plan.mean_weights.T)[a, b]
-        with np.errstate(invalid="ignore"):
-            r = np.clip(mean_r / (mean_std[a] * mean_std[b]), -0.9, 0.9)
+        r = np.minimum(np.maximum(mean_r / (mean_std[a] * mean_std[b]), -0.9), 0.9)  # NaN without items
         target[e] = np.where(np.isnan(r), 0.0, r) * np.sqrt(total_var[a] * total_var[b])
     e, x = plan.residuals
     explained = np.minimum((std_loading**2).sum(axis=0), 0.9)
     target[e] = S[x, x] * (1.0 - np.where(plan.has_factor[x], explained[x], 0.5))
-    if means is not None:
+    if means is not None and len(plan.intercepts[0]):
         e, x = plan.intercepts
         target[e] = means[x]
     if thresholds is not None:
@@ -200,9 +203,9 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
         target[e] = thresholds[k]
 
     theta = plan.solve @ (target - table.mapping()[1])
-    given = ~np.isnan(table.start)
-    theta[given] = table.start[given]
-    return np.clip(theta, table.lower, table.upper)
+    if len(plan.given):
+        theta[plan.given] = table.start[plan.given]
+    return np.clip(theta, table.lower, table.upper) if plan.bounded else theta
 
 
 def _principal_axes(R: np.ndarray) -> np.ndarray:
