@@ -145,14 +145,34 @@ def blas_threads_for(p: int):
 
     if p > SMALL_MODEL:
         return contextlib.nullcontext()
-    return _thread_controller().limit(limits=1, user_api="blas")
+    return _OneBlasThread(_blas_libraries())
+
+
+class _OneBlasThread:
+    """BLAS libraries run one thread inside the context and return to their numbers after it
+    (threadpoolctl's own limiter does the same with more bookkeeping, noticeable on a 1 ms fit)."""
+
+    def __init__(self, libraries: tuple) -> None:
+        self.libraries = libraries
+        self.previous: list[int] = []
+
+    def __enter__(self) -> None:
+        self.previous = [lib.num_threads for lib in self.libraries]
+        for lib, n in zip(self.libraries, self.previous):
+            if n != 1:
+                lib.set_num_threads(1)
+
+    def __exit__(self, *exc) -> None:
+        for lib, n in zip(self.libraries, self.previous):
+            if n != 1:
+                lib.set_num_threads(n)
 
 
 @lru_cache(maxsize=1)
-def _thread_controller():
+def _blas_libraries() -> tuple:
     from threadpoolctl import ThreadpoolController
 
-    return ThreadpoolController()
+    return tuple(lib for lib in ThreadpoolController().lib_controllers if lib.user_api == "blas")
 
 
 def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Estimation, options: FitOptions,

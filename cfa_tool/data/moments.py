@@ -57,6 +57,8 @@ MISSING_CHOICES = ("listwise", "full-information")
 
 def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
     values = numeric_columns(frame, names, source)
+    if np.isfinite(values).all():  # the usual case: nothing infinite, nothing missing
+        return values
     infinite = np.isinf(values)
     if infinite.any():
         row, col = np.argwhere(infinite)[0]
@@ -109,7 +111,8 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     if missing == "full-information":
         return _incomplete_moments(values, names, source, file_source, group, len(frame))
     complete = ~np.isnan(values).any(axis=1)
-    data = values[complete]
+    every_row = bool(complete.all())
+    data = values if every_row else values[complete]
     n = len(data)
     if n == 0:
         raise DataError(f"{source}: no row has answers on all {p} model variables, so nothing is left to analyse")
@@ -122,8 +125,8 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     centred = data - means
     cov = centred.T @ centred / n
     _check_moments(cov, means, names, source)
-    numbers = _row_numbers(frame)[complete]
-    return SampleMoments(tuple(names), cov, means, n, len(frame), int((~complete).sum()), file_source, group, data, numbers)
+    numbers = _row_numbers(frame) if every_row else _row_numbers(frame)[complete]
+    return SampleMoments(tuple(names), cov, means, n, len(frame), len(frame) - n, file_source, group, data, numbers)
 
 
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int) -> SampleMoments:
