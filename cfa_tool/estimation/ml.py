@@ -139,6 +139,9 @@ class NormalLikelihood:
         V, a = basis_vectors(mats, self.means)
         g_e, H_e, K, Q = gradient_and_information(self._basis[g], V, a, parts.sigma_inv, parts.M, parts.mean_gradient,
                                                   with_information)
+        for kept in (g_e, H_e):  # shared by every caller at this point (see _evaluate)
+            if kept is not None:
+                kept.setflags(write=False)
         state[2] = (mats, parts, g_e, H_e, K, Q)
         return state[2]
 
@@ -164,7 +167,7 @@ class NormalLikelihood:
             out = self._rank_two(theta, 0, with_information)
             if out is None or not np.isfinite(out[1].value):
                 return None
-            return Evaluation(out[1].value, out[2], out[3])  # shared with the memo: read-only by convention
+            return Evaluation(out[1].value, out[2], out[3])  # the memo's read-only arrays
         q = len(theta)
         gradient = np.zeros(q)
         information = np.zeros((q, q)) if with_information else None
