@@ -23,7 +23,7 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from cfa_tool import distributions as dist
-from cfa_tool.estimation.linalg import spd_inverse
+from cfa_tool.estimation.linalg import log_det_pd, spd_inverse
 
 
 @dataclass(frozen=True)
@@ -140,8 +140,9 @@ def normal_log_likelihood(S: np.ndarray, sigma: np.ndarray, n_obs: int, mean_dev
 
 def baseline_chi_square(S: np.ndarray, n_obs: int) -> tuple[float, int]:
     p = S.shape[0]
-    found = spd_inverse(S)
-    logdet = found[1] if found is not None else np.linalg.slogdet(S)[1]
+    logdet = log_det_pd(S)
+    if logdet is None:
+        logdet = np.linalg.slogdet(S)[1]
     return float(n_obs * (np.log(S.diagonal()).sum() - logdet)), p * (p - 1) // 2
 
 

@@ -12,7 +12,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.errors import DataError
-from cfa_tool.estimation.linalg import cholesky_lower
+from cfa_tool.estimation.linalg import cholesky_log_det
 
 
 @dataclass(frozen=True)
@@ -75,8 +75,8 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
         raise DataError(f"{source}: column '{names[j]}' has the same value ({means[j]:g}) in every row used, so it carries no information")
     corr = cov / np.outer(sds, sds)
     # a column that is an exact combination of earlier ones has (next to) no variance left given them
-    factor = cholesky_lower(corr)
-    if factor is not None and factor.diagonal().min() ** 2 > 1e-8:
+    found = cholesky_log_det(corr)
+    if found is not None and found[0].diagonal().min() ** 2 > 1e-8:
         return
     vals, vecs = np.linalg.eigh(corr)
     if vals[0] < 1e-10:

@@ -16,21 +16,30 @@ import numpy as np
 from scipy.linalg import lapack  # direct LAPACK calls: numpy.linalg's checks cost more than small factorisations
 
 
-def cholesky_lower(A: np.ndarray) -> np.ndarray | None:
-    """Lower Cholesky factor of a symmetric matrix, or None when it is not positive definite."""
-    factor, info = lapack.dpotrf(A, lower=1, clean=1)
-    return factor if info == 0 and np.isfinite(factor).all() else None
-
-
-def spd_inverse(A: np.ndarray) -> tuple[np.ndarray, float] | None:
-    """(A^-1, log|A|) of a symmetric positive-definite matrix from its Cholesky factor (exactly
-    symmetric), or None when A is not positive definite."""
+def cholesky_log_det(A: np.ndarray) -> tuple[np.ndarray, float] | None:
+    """(lower Cholesky factor, log|A|) of a symmetric matrix, or None when it is not positive definite."""
     factor, info = lapack.dpotrf(A, lower=1, clean=1)
     if info != 0:
         return None
     log_det = 2.0 * float(np.log(factor.diagonal()).sum())
     if not np.isfinite(log_det):  # NaN anywhere in A reaches the factor's diagonal
         return None
+    return factor, log_det
+
+
+def log_det_pd(A: np.ndarray) -> float | None:
+    """log-determinant of a positive-definite matrix, or None if it is not."""
+    found = cholesky_log_det(A)
+    return None if found is None else found[1]
+
+
+def spd_inverse(A: np.ndarray) -> tuple[np.ndarray, float] | None:
+    """(A^-1, log|A|) of a symmetric positive-definite matrix from its Cholesky factor (exactly
+    symmetric), or None when A is not positive definite."""
+    found = cholesky_log_det(A)
+    if found is None:
+        return None
+    factor, log_det = found
     lower, info = lapack.dpotri(factor, lower=1)
     if info != 0:
         return None

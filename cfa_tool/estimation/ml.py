@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.estimation.linalg import cholesky_lower, spd_inverse
+from cfa_tool.estimation.linalg import log_det_pd, spd_inverse
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, entry_basis, gradient_and_information,
                                      second_derivative_contraction)
@@ -25,17 +25,6 @@ class Evaluation:
     value: float
     gradient: np.ndarray
     information: np.ndarray  # expected Hessian of F
-
-
-def log_det_pd(matrix: np.ndarray) -> float | None:
-    """log-determinant of a positive-definite matrix, or None if it is not."""
-    c = cholesky_lower(matrix)
-    if c is None:
-        return None
-    d = c.diagonal()
-    if np.any(d <= 0):
-        return None
-    return 2.0 * float(np.sum(np.log(d)))
 
 
 @dataclass(frozen=True)

@@ -23,7 +23,7 @@ from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool.errors import DataError, EstimationError
-from cfa_tool.estimation.ml import log_det_pd
+from cfa_tool.estimation.linalg import log_det_pd
 from cfa_tool.fitting import fit_moments
 from cfa_tool.language.spec import Spec
 from cfa_tool.results import FitResult, clean
