@@ -37,8 +37,9 @@ class StartPlan:
     indices into ``table.parameters``, ``table.observed`` and ``table.latent``)."""
 
     blocks: tuple[FactorBlock, ...]  # the factors with indicators, by number of indicators
-    # higher-order factors, lowest level first: (factor, the factors it loads on, scale rule)
-    higher: tuple[tuple[int, tuple[int, ...], tuple], ...]
+    # higher-order factors, lowest level first: (factor, the factors it loads on, (rule, position, value)) with
+    # the rules of FactorBlock, the marker's position being the lower factor itself
+    higher: tuple[tuple[int, tuple[int, ...], tuple[int, int, float]], ...]
     endogenous: np.ndarray  # bool per factor: loads on a higher-order factor
     mean_weights: np.ndarray  # (m, p): 1 / (number of items) for each factor's items, for mean correlations
     has_factor: np.ndarray  # bool per item: has a loading
@@ -124,11 +125,11 @@ def start_plan(table: ParameterTable) -> StartPlan:
             if not all(h in known for h in lower[g]):
                 continue
             if g in fixed_var:
-                rule = ("variance", fixed_var[g])
+                rule = (0, 0, fixed_var[g])
             elif g in fixed_load and fixed_load[g][0] in known:
-                rule = ("marker", fixed_load[g][0], fixed_load[g][1])
+                rule = (1, fixed_load[g][0], fixed_load[g][1])
             else:
-                rule = ("mean",)
+                rule = (2, 0, 1.0)
             higher.append((g, tuple(lower[g]), rule))
             known.add(g)
             pending.remove(g)
@@ -168,11 +169,11 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
         raw = std * sd[ix]
         marker = raw[np.arange(len(ix)), b.position] / np.where(b.rule == 1, b.value, 1.0)
         total_var[b.factors] = np.where(b.rule == 0, b.value, np.where(b.rule == 1, marker, raw.mean(axis=1)) ** 2)
-    for g, lower, rule in plan.higher:
-        if rule[0] == "variance":
-            total_var[g] = rule[1]
-        elif rule[0] == "marker":
-            total_var[g] = 0.5 * total_var[rule[1]] / rule[2] ** 2
+    for g, lower, (rule, position, value) in plan.higher:
+        if rule == 0:
+            total_var[g] = value
+        elif rule == 1:
+            total_var[g] = 0.5 * total_var[position] / value**2
         else:
             total_var[g] = 0.5 * total_var[list(lower)].mean()
         mean_std[g] = np.sqrt(0.5)
