@@ -208,8 +208,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     yuan_bentler = options.test == "yuan-bentler"
     if robust_wanted and any(gm.rows is None for gm in likelihood.groups):
         raise OptionError("the Satorra-Bentler test needs the raw data rows, not only a covariance matrix")
-    group_srmr = [srmr_value(gm.covariance, mats[g].implied_covariance()) for g, gm in enumerate(likelihood.groups)]
+    group_srmr = None
     if est.converged:
+        group_srmr = [srmr_value(gm.covariance, mats[g].implied_covariance()) for g, gm in enumerate(likelihood.groups)]
         evaluation = likelihood.evaluate(theta)
         information = evaluation.information
         check_information_rank(information, table.free_labels)

@@ -52,6 +52,14 @@ def minimise(
     hessian_usable = None
     bounded = bool(np.isfinite(lower).any() or np.isfinite(upper).any())
     unbounded = np.zeros(len(theta), dtype=bool), np.ones(len(theta), dtype=bool), np.arange(len(theta))
+
+    def closed_form_hessian(theta, free_all, idx):
+        """The closed-form Hessian over the free parameters, or None (a likelihood without one says so once)."""
+        nonlocal hessian_usable
+        full = hessian(theta)
+        hessian_usable = full is not None
+        return None if full is None else (full if free_all else full[np.ix_(idx, idx)])
+
     for iterations in range(1, max_iterations + 1):
         g = current.gradient
         if bounded:
@@ -65,10 +73,9 @@ def minimise(
         if (hessian is not None and hessian_usable is not False
                 and NEAR_MINIMUM < previous_decrement < CLOSED_FORM_NEWTON_BELOW):
             # Newton's phase: the closed-form Hessian alone gives the step and its decrement
-            full = hessian(theta)
-            hessian_usable = full is not None
-            if full is not None:
-                newton = _newton_from(full if free_all else full[np.ix_(idx, idx)], theta, g, idx)
+            observed = closed_form_hessian(theta, free_all, idx)
+            if observed is not None:
+                newton = _newton_from(observed, theta, g, idx)
         last_step = False
         if newton is not None:
             step = newton
@@ -100,9 +107,7 @@ def minimise(
             previous_decrement = decrement
             observed = None
             if hessian is not None and hessian_usable is not False and decrement < CLOSED_FORM_NEWTON_BELOW:
-                full = hessian(theta)
-                hessian_usable = full is not None  # a likelihood without one says so once
-                observed = None if full is None else (full if free_all else full[np.ix_(idx, idx)])
+                observed = closed_form_hessian(theta, free_all, idx)
             if observed is None and gradient is not None and decrement < newton_below and slow:
                 observed = difference_hessian(gradient, theta, central=False, base=g, indices=idx)
             if observed is not None:
