@@ -78,7 +78,7 @@ def interleaved(functions, repeat: int, block: int = 1) -> list[tuple[float, flo
 
     Each turn runs a function ``block`` times in a row: fits repeated in a loop (bootstraps,
     simulations, searches) run with their code and data in the processor's caches, while a single
-    fit right after another program's finds them evicted (about 0.7 ms more for case 1 here)."""
+    fit right after another program's finds them evicted (about 0.5 ms more for case 1 here, as bench/README.md says)."""
     times = [[] for _ in functions]
     outs = [None] * len(functions)
     for _ in range(repeat):
