@@ -230,14 +230,15 @@ def _run(args: argparse.Namespace) -> int:
 
         args.group = args.reference_group = args.sheet = None
         args.missing_codes, args.keep = (), []
-        model = resource_dir("models") / "rider_three_factors.cfa"
-        data = resource_dir("demo") / "rider_survey.csv"
-        return _fit_and_report(args, str(model), str(data))
+        args.model = str(resource_dir("models") / "rider_three_factors.cfa")
+        args.data = str(resource_dir("demo") / "rider_survey.csv")
+    _check_output(args, _inputs(args))
+    if args.command == "demo":
+        return _fit_and_report(args, args.model, args.data)
     if args.command == "compare":
         from cfa_tool.reporting.workflow_text import render_comparison
         from cfa_tool.workflows.compare import compare
 
-        _check_output(args, args.models + [args.data])
         result = compare(args.models, args.data, group=args.group, reference_group=args.reference_group, test=args.test,
                          sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
                          ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
@@ -246,7 +247,6 @@ def _run(args: argparse.Namespace) -> int:
         from cfa_tool.reporting.workflow_text import render_invariance
         from cfa_tool.workflows.invariance import invariance
 
-        _check_output(args, [args.model, args.data])
         result = invariance(args.model, args.data, args.group, reference_group=args.reference_group,
                             partial=args.partial, alpha=args.alpha, sheet=args.sheet, missing_codes=args.missing_codes,
                             keep=args.keep, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
@@ -265,10 +265,8 @@ def _replicate(args: argparse.Namespace) -> int:
     if args.data and (args.calibration or args.validation):
         raise OptionError("give either --data (split-half) or --calibration and --validation, not both")
     if args.data:
-        _check_output(args, [args.model, args.data])
         pair = split_half(args.model, args.data, seed=args.seed)
     elif args.calibration and args.validation:
-        _check_output(args, [args.model, args.calibration, args.validation])
         pair = (replicate(args.model, args.calibration, args.validation),)
     else:
         raise OptionError("give --calibration and --validation files, or --data FILE to split one data set in two halves")
@@ -279,9 +277,6 @@ def _replicate(args: argparse.Namespace) -> int:
 class _Replications(tuple):
     def to_dict(self) -> dict:
         return {"replications": [r.to_dict() for r in self]}
-
-
-REPORT_OPTIONS = ("json", "html", "markdown", "diagram")
 
 
 def _simulation_command(args: argparse.Namespace) -> int:
@@ -305,13 +300,12 @@ def _simulation_command(args: argparse.Namespace) -> int:
     if args.command == "simulate":
         from cfa_tool.workflows.simulation import simulate
 
-        _refuse_overwriting_input(Path(args.output), [Path(args.model)])
+        from cfa_tool.output_files import write_file
+
         frame = simulate(read_model_file(args.model), args.n, args.seed, args.categories, args.missing)
-        write_atomically(Path(args.output), frame.to_csv(index=False, na_rep=""))
-        print(f"{len(frame)} rows of {frame.shape[1]} variables written to {args.output} (seed {args.seed})")
+        write_file(args._targets["--output"], frame.to_csv(index=False, na_rep=""))
+        _say(args, f"{len(frame)} rows of {frame.shape[1]} variables written to {args.output} (seed {args.seed})")
         return 0
-    inputs = [args.model] + ([args.data] if getattr(args, "data", None) else [])
-    _check_output(args, inputs)
     with _progress(args.command) as advance:
         if args.command == "power-simulation":
             from cfa_tool.workflows.montecarlo import monte_carlo_power
@@ -369,82 +363,115 @@ def _ordinal_arg(text: str | None):
     return "all" if text.strip() == "all" else [t.strip() for t in text.split(",") if t.strip()]
 
 
-def _check_output(args: argparse.Namespace, inputs: list[str]) -> None:
-    targets = [getattr(args, name, None) for name in REPORT_OPTIONS]
-    for target in targets:
-        if target and target != "-":
-            _refuse_overwriting_input(Path(target), [Path(i) for i in inputs])
-    folder = getattr(args, "tables", None)
-    if folder and Path(folder).exists() and not Path(folder).is_dir():
-        raise OptionError(f"--tables needs a folder, and '{folder}' is a file")
-    named = [t for t in targets if t and t != "-"]
-    if len(set(named)) != len(named):
-        raise OptionError("two outputs are given the same file name")
+REPORT_FILES = (("--json", "json"), ("--html", "html"), ("--markdown", "markdown"), ("--diagram", "diagram"),
+                ("--output", "output"))
+DIAGRAM_SUFFIXES = (".svg", ".png")
 
 
-def _write_reports(args: argparse.Namespace, result) -> None:
-    """The report files asked for, each written atomically."""
+def _inputs(args: argparse.Namespace) -> list[str]:
+    """Every file the command reads: models, data, calibration and validation files."""
+    names = [getattr(args, "model", None), *(getattr(args, "models", None) or ()),
+             getattr(args, "data", None), getattr(args, "calibration", None), getattr(args, "validation", None)]
+    return [n for n in names if n]
+
+
+def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
+    """Every output of the run checked before any work (see cfa_tool.output_files)."""
+    from cfa_tool.output_files import check_outputs
+
+    diagram = getattr(args, "diagram", None)
+    if diagram and diagram != "-" and Path(diagram).suffix.lower() not in DIAGRAM_SUFFIXES:
+        raise OptionError(f"--diagram: '{diagram}' must end in .svg or .png (the two formats the diagram is written in)")
+    outputs = [(option, getattr(args, attr, None)) for option, attr in REPORT_FILES]
+    targets = check_outputs(outputs, inputs, [("--tables", getattr(args, "tables", None))])
+    if diagram and diagram.lower().endswith(".png"):
+        _png_converter()
+    args._targets = targets
+    return targets
+
+
+def _say(args: argparse.Namespace, text: str) -> None:
+    """A line about files written: on standard output, or on standard error when standard
+    output carries the JSON result."""
+    print(text, file=sys.stderr if getattr(args, "json", None) == "-" else sys.stdout)
+
+
+def _report_files(args: argparse.Namespace, result) -> list[tuple[str, object, str]]:
+    """(option, content, message) of every report file asked for, made before anything is written."""
+    files: list[tuple[str, object, str]] = []
+    if getattr(args, "json", None):
+        from cfa_tool.reporting.json_report import to_json
+
+        files.append(("--json", to_json(result), f"JSON result written to {args.json}"))
     if getattr(args, "html", None):
         from cfa_tool.reporting.html_report import html_report
 
-        write_atomically(Path(args.html), html_report(result))
-        print(f"HTML report written to {args.html}")
+        files.append(("--html", html_report(result), f"HTML report written to {args.html}"))
     if getattr(args, "markdown", None):
         from cfa_tool.reporting.text_formats import markdown_report
 
-        write_atomically(Path(args.markdown), markdown_report(result))
-        print(f"Markdown report written to {args.markdown}")
+        files.append(("--markdown", markdown_report(result), f"Markdown report written to {args.markdown}"))
     if getattr(args, "diagram", None):
         from cfa_tool.reporting.diagram import path_diagram
 
-        target = Path(args.diagram)
         svg = path_diagram(result)
-        if target.suffix.lower() == ".png":
-            _write_png(svg, target)
-        else:
-            write_atomically(target, svg)
-        print(f"Path diagram written to {args.diagram}")
-    if getattr(args, "tables", None):
-        from cfa_tool.reporting.text_formats import all_tables, csv_table, latex_table
-
-        folder = Path(args.tables)
-        folder.mkdir(parents=True, exist_ok=True)
-        for table in all_tables(result):
-            write_atomically(folder / f"{table.key}.csv", csv_table(table))
-            write_atomically(folder / f"{table.key}.tex", latex_table(table))
-        print(f"Tables written to {folder}/ as CSV and LaTeX")
+        content = _png_bytes(svg) if args.diagram.lower().endswith(".png") else svg
+        files.append(("--diagram", content, f"Path diagram written to {args.diagram}"))
+    return files
 
 
-def _write_png(svg: str, target: Path) -> None:
+def _table_files(args: argparse.Namespace, result) -> dict[str, str]:
+    if not getattr(args, "tables", None):
+        return {}
+    from cfa_tool.reporting.text_formats import all_tables, csv_table, latex_table
+
+    files = {}
+    for table in all_tables(result):
+        files[f"{table.key}.csv"] = csv_table(table)
+        files[f"{table.key}.tex"] = latex_table(table)
+    return files
+
+
+def _png_converter() -> str:
     import shutil
-    import subprocess
-    import tempfile
 
     converter = shutil.which("rsvg-convert")
     if converter is None:
         raise OptionError("writing PNG needs the rsvg-convert program (Debian package librsvg2-bin); write .svg instead")
-    directory = target.parent if str(target.parent) else Path(".")
-    with tempfile.TemporaryDirectory(dir=directory) as tmp:
+    return converter
+
+
+def _png_bytes(svg: str) -> bytes:
+    import subprocess
+    import tempfile
+
+    with tempfile.TemporaryDirectory() as tmp:
         source = Path(tmp) / "diagram.svg"
         source.write_text(svg, encoding="utf-8")
         out = Path(tmp) / "diagram.png"
-        done = subprocess.run([converter, "-o", str(out), str(source)], capture_output=True, text=True)
+        done = subprocess.run([_png_converter(), "-o", str(out), str(source)], capture_output=True, text=True)
         if done.returncode != 0 or not out.exists():
             raise OptionError(f"the SVG-to-PNG converter failed: {done.stderr.strip()[:200]}")
-        os.replace(out, target)
+        return out.read_bytes()
 
 
 def _emit(args: argparse.Namespace, result, render) -> int:
-    from cfa_tool.reporting.json_report import to_json
+    """Make every output, check that each can be written, then show the report and write them."""
+    from cfa_tool.output_files import check_table_folder, write_file, write_table_folder
 
-    if args.json == "-":
-        sys.stdout.write(to_json(result))
-        return 0
-    render(result, _console())
-    if args.json:
-        write_atomically(Path(args.json), to_json(result))
-        print(f"JSON result written to {args.json}")
-    _write_reports(args, result)
+    files = _report_files(args, result)
+    tables = _table_files(args, result)
+    if tables:
+        check_table_folder("--tables", args.tables, tables, _inputs(args))
+    if args.json != "-":  # otherwise standard output carries the JSON alone
+        render(result, _console())
+    for option, content, message in files:
+        write_file(args._targets[option], content)
+        if not args._targets[option].is_stdout:
+            _say(args, message)
+    if tables:
+        write_table_folder("--tables", args.tables, tables, _inputs(args))
+        _say(args, f"Tables written to {args.tables}/ as CSV and LaTeX")
     return 0
 
 
@@ -460,7 +487,6 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
     from cfa_tool.api import fit
     from cfa_tool.reporting.terminal import render
 
-    _check_output(args, [model, data])
     result = fit(model, data, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
                  missing_codes=args.missing_codes, keep=args.keep, information=args.information,
                  mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=args.test,
@@ -471,30 +497,6 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
             f"('start ...' statements), check the data for extreme values, or simplify the model"
         )
     return _emit(args, result, render)
-
-
-def _refuse_overwriting_input(target: Path, inputs: list[Path]) -> None:
-    for source in inputs:
-        if source.exists() and target.exists() and target.resolve() == source.resolve():
-            raise OptionError(f"refusing to write output to '{target}': it is one of the input files")
-
-
-def write_atomically(target: Path, text: str) -> None:
-    """Write to a temporary file beside the target, then rename it into place."""
-    import tempfile
-
-    directory = target.parent if str(target.parent) else Path(".")
-    if not directory.is_dir():
-        raise OptionError(f"cannot write '{target}': the folder '{directory}' does not exist")
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=directory)
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as handle:
-            handle.write(text)
-        os.replace(tmp, target)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
 
 
 if __name__ == "__main__":  # pragma: no cover

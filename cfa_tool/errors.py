@@ -7,7 +7,32 @@ subclass; the command line prints its one-line message and exits with
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
+
+# C0 and C1 control characters, line and paragraph separators, and the bidirectional
+# overrides that can make text display as something else
+_UNPRINTABLE = re.compile("[\x00-\x1f\x7f-\x9f\u2028\u2029\u202a-\u202e\u2066-\u2069\ufeff]")
+
+
+def printable(text: object, keep_newlines: bool = False) -> str:
+    """``text`` with control characters shown as escapes (``\\x1b``, ``\\n``), so that names, labels
+    and values from a user's files cannot move the cursor, clear a terminal or split a one-line
+    message.  Tabs become spaces."""
+    value = str(text).replace("\t", " ")
+
+    def escape(match: re.Match) -> str:
+        ch = match.group(0)
+        if keep_newlines and ch == "\n":
+            return ch
+        if ch == "\n":
+            return "\\n"
+        if ch == "\r":
+            return "\\r"
+        code = ord(ch)
+        return f"\\x{code:02x}" if code < 0x100 else f"\\u{code:04x}"
+
+    return _UNPRINTABLE.sub(escape, value)
 
 
 @dataclass(frozen=True)
@@ -45,11 +70,13 @@ class ModelError(UserInputError):
         return f"{self.location}: {self.message}" if self.location else self.message
 
     def excerpt(self) -> str:
-        """The offending source line with a caret under the column ('' if unknown)."""
+        """The offending source line with a caret under the column ('' if unknown); control
+        characters in the line are shown escaped, and the caret stays under the same character."""
         if self.location is None or self.source_line is None:
             return ""
-        line = self.source_line.expandtabs(1)
-        return f"    {line}\n    {' ' * (self.location.column - 1)}^"
+        line = self.source_line
+        before = printable(line[: max(0, self.location.column - 1)])
+        return f"    {printable(line)}\n    {' ' * len(before)}^"
 
 
 class DataError(UserInputError):

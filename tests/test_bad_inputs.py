@@ -53,13 +53,21 @@ def test_the_corpus_is_large_enough():
     assert len({c["name"] for c in CASES}) == len(CASES)
 
 
+def _argv(case: dict) -> list[str]:
+    """A case gives either ``args`` added to a fit of ``model`` on ``data`` that also asks for JSON
+    and HTML, or the whole ``argv`` of any command; {data} and {model} stand for their paths."""
+    data = f"data/{case.get('data', 'good.csv')}"
+    model = f"models/{case.get('model', 'good.cfa')}"
+    if "argv" in case:
+        return [a.replace("{data}", data).replace("{model}", model) for a in case["argv"]]
+    args = [a.replace("{data}", data).replace("{model}", model) for a in case["args"]]
+    return ["fit", model, "--data", data, "--json", "out.json", "--html", "out.html", *args]
+
+
 @pytest.mark.parametrize("case", CASES, ids=[c["name"] for c in CASES])
 def test_bad_input(case, corpus, capsys):
     before = _snapshot(corpus)
-    data = f"data/{case['data']}"
-    args = [a.replace("{data}", data) for a in case["args"]]
-    argv = ["fit", f"models/{case['model']}", "--data", data, "--json", "out.json", "--html", "out.html", *args]
-    code, _, err = _run(argv, capsys)
+    code, _, err = _run(_argv(case), capsys)
     _check(code, err, case["exit"], case["words"], before, corpus)
 
 

@@ -8,7 +8,8 @@ import json
 from pathlib import Path
 
 import cfa_tool
-from cfa_tool.cli import write_atomically
+from cfa_tool.errors import CfaError
+from cfa_tool.output_files import write_file
 from tests.conftest import THREE_FACTORS
 from tests.test_cli import DATA, MODEL, run
 
@@ -38,10 +39,10 @@ def test_atomic_write_leaves_no_partial_file(tmp_path, monkeypatch):
     def interrupted(src, dst):
         raise OSError("disk full")
 
-    monkeypatch.setattr("cfa_tool.cli.os.replace", interrupted)
+    monkeypatch.setattr("cfa_tool.output_files.os.replace", interrupted)
     try:
-        write_atomically(target, "new")
-    except OSError:
+        write_file(target, "new")
+    except CfaError:
         pass
     assert target.read_text() == "old"
     assert [p.name for p in tmp_path.iterdir()] == ["out.json"]

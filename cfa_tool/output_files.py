@@ -1,0 +1,292 @@
+"""Output files: one guard and one writer for every command.
+
+Rules (the contributor guide's "never lose a file"):
+
+* No output may replace an input (model, data, summary-statistics file): inputs and
+  outputs are compared by file identity (device and inode, so links and other
+  spellings of a path are caught), not by their text.
+* Two outputs of one run may not name the same file.
+* An output path that is a folder, lies in a folder that does not exist or cannot be
+  written, or lies on a pseudo-filesystem (/proc, /sys, ...) is an error before any
+  work is done.
+* Regular files are written to a temporary file beside the target and renamed into
+  place (an interrupted run leaves the old file whole), with the permissions the
+  user's umask gives (or the replaced file's own).  A symbolic link is followed and
+  its target replaced, so the link stays a link.  Character devices and named pipes
+  (``/dev/null``, a FIFO) and ``-`` (standard output) are written directly, never
+  renamed over.
+* A table folder receives files with fixed names; it may replace only files that this
+  tool wrote there before and that are unchanged since (a manifest in the folder
+  records their checksums).  Any other file of the same name is an error naming it.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import os
+import secrets
+import stat
+import sys
+from dataclasses import dataclass
+from pathlib import Path
+
+from cfa_tool.errors import OptionError
+
+STDOUT = "-"
+MANIFEST = ".cfa-tool-tables.json"
+_MANIFEST_MARK = "cfa-tool table folder"
+
+#: Filesystems whose files are the kernel's, not the user's.
+PSEUDO_FILESYSTEMS = frozenset({
+    "proc", "sysfs", "cgroup", "cgroup2", "debugfs", "tracefs", "securityfs", "pstore", "bpf", "configfs",
+    "fusectl", "devpts", "mqueue", "binfmt_misc", "efivarfs", "autofs", "devtmpfs", "hugetlbfs", "rpc_pipefs",
+    "nsfs", "selinuxfs",
+})
+
+
+@dataclass(frozen=True)
+class Target:
+    """One output file as the user named it, and where writing it goes."""
+
+    option: str  # e.g. '--json'
+    given: str
+    direct: bool  # '-' or a special file: written in place, never renamed over
+
+    @property
+    def is_stdout(self) -> bool:
+        return self.given == STDOUT
+
+
+def _identity(path: Path) -> tuple[int, int] | None:
+    try:
+        st = path.stat()
+    except (OSError, ValueError):
+        return None
+    return (st.st_dev, st.st_ino)
+
+
+def _mount_types() -> list[tuple[str, str]]:
+    """(mount point, filesystem type), longest mount point first; empty where /proc is not there."""
+    try:
+        text = Path("/proc/self/mounts").read_text(encoding="utf-8", errors="replace")
+    except OSError:
+        return []
+    mounts = []
+    for line in text.splitlines():
+        parts = line.split()
+        if len(parts) >= 3:
+            mounts.append((parts[1].replace("\\040", " "), parts[2]))
+    return sorted(mounts, key=lambda m: len(m[0]), reverse=True)
+
+
+def filesystem_type(path: Path) -> str | None:
+    """The type of the filesystem holding ``path`` (Linux), or None when unknown."""
+    text = str(path)
+    for point, kind in _mount_types():
+        if text == point or text.startswith(point.rstrip("/") + "/"):
+            return kind
+    return None
+
+
+def shown(path: str | Path) -> str:
+    """A path for a one-line message: control characters escaped, overlong paths shortened."""
+    from cfa_tool.errors import printable
+
+    text = printable(str(path))
+    return text if len(text) <= 200 else text[:120] + "..." + text[-60:]
+
+
+def check_target(option: str, given: str) -> Target:
+    """Check one output path before any work is done (see the module's rules)."""
+    if given == STDOUT:
+        return Target(option, given, True)
+    if not given or "\x00" in given:
+        raise OptionError(f"{option}: the file name is empty or holds a NUL character")
+    path = Path(given)
+    try:
+        st = path.stat()  # follows a symbolic link
+    except FileNotFoundError:
+        st = None
+    except OSError as exc:
+        raise OptionError(f"{option}: cannot use '{shown(given)}' as an output file ({exc.strerror or exc})") from None
+    if st is not None:
+        if stat.S_ISDIR(st.st_mode):
+            raise OptionError(f"{option}: '{shown(given)}' is a folder; give a file name")
+        if stat.S_ISCHR(st.st_mode) or stat.S_ISFIFO(st.st_mode):
+            if not os.access(path, os.W_OK):
+                raise OptionError(f"{option}: '{shown(given)}' cannot be written (permission denied)")
+            return Target(option, given, True)
+        if not stat.S_ISREG(st.st_mode):
+            raise OptionError(f"{option}: '{shown(given)}' is not a regular file; give a file name")
+    real = Path(os.path.realpath(path))
+    folder = real.parent
+    if not folder.is_dir():
+        raise OptionError(f"{option}: cannot write '{shown(given)}': the folder '{shown(path.parent)}' does not exist")
+    kind = filesystem_type(folder)
+    if kind in PSEUDO_FILESYSTEMS:
+        raise OptionError(f"{option}: '{shown(given)}' is on the system's {kind} filesystem, not a place for files; "
+                          f"choose another folder")
+    if not os.access(folder, os.W_OK | os.X_OK):
+        raise OptionError(f"{option}: cannot write '{shown(given)}': the folder '{shown(folder)}' is not writable")
+    if st is not None and not os.access(real, os.W_OK):
+        raise OptionError(f"{option}: cannot write '{shown(given)}': the file is read-only")
+    if len(real.name.encode("utf-8", "surrogateescape")) > 255:
+        raise OptionError(f"{option}: the file name '{shown(real.name)}' is longer than 255 bytes")
+    return Target(option, given, False)
+
+
+def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path | None],
+                  folders: list[tuple[str, str | None]] = ()) -> dict[str, Target]:
+    """Check every output of a run at once, before any work: each path on its own, none the
+    same file as an input, no two the same file.  ``outputs`` are (option, path) pairs
+    (None: not asked for); ``folders`` are (option, folder) pairs for table folders."""
+    targets: dict[str, Target] = {}
+    input_ids = {}
+    for source in inputs:
+        if source is None:
+            continue
+        ident = _identity(Path(source))
+        if ident is not None:
+            input_ids[ident] = str(source)
+    seen: dict[object, str] = {}
+    for option, given in outputs:
+        if given is None:
+            continue
+        target = check_target(option, given)
+        targets[option] = target
+        if target.is_stdout:
+            key: object = STDOUT
+        else:
+            ident = _identity(Path(given))
+            if ident is not None and ident in input_ids and not target.direct:
+                raise OptionError(f"{option}: refusing to write to '{shown(given)}': it is the input file "
+                                  f"'{shown(input_ids[ident])}'")
+            key = ident if ident is not None else os.path.realpath(given)
+        if key in seen and not (key == STDOUT or target.direct):
+            raise OptionError(f"{option} and {seen[key]} name the same file ('{shown(given)}'); give each output its own file")
+        if key == STDOUT and key in seen:
+            raise OptionError(f"{option} and {seen[key]} both write to standard output; only one can")
+        seen[key] = option
+    for option, folder in folders:
+        if folder is None:
+            continue
+        check_folder(option, folder)
+    return targets
+
+
+def check_folder(option: str, folder: str) -> None:
+    path = Path(folder)
+    if path.exists() and not path.is_dir():
+        raise OptionError(f"{option}: '{shown(folder)}' is a file; give a folder for the tables")
+    existing = path if path.is_dir() else next((p for p in path.absolute().parents if p.exists()), Path("/"))
+    if not existing.is_dir():
+        raise OptionError(f"{option}: cannot create the folder '{shown(folder)}': '{shown(existing)}' is a file")
+    kind = filesystem_type(Path(os.path.realpath(existing)))
+    if kind in PSEUDO_FILESYSTEMS:
+        raise OptionError(f"{option}: '{shown(folder)}' is on the system's {kind} filesystem, not a place for files")
+    if not os.access(existing, os.W_OK | os.X_OK):
+        raise OptionError(f"{option}: cannot write into '{shown(existing)}': the folder is not writable")
+
+
+def write_file(target: Target | str | Path, content: str | bytes) -> None:
+    """Write one output (see the module's rules for how)."""
+    if not isinstance(target, Target):
+        target = check_target("output", str(target))
+    data = content.encode("utf-8") if isinstance(content, str) else content
+    if target.is_stdout:
+        sys.stdout.flush()
+        sys.stdout.buffer.write(data) if hasattr(sys.stdout, "buffer") else sys.stdout.write(data.decode("utf-8"))
+        sys.stdout.flush()
+        return
+    if target.direct:
+        try:
+            with open(target.given, "wb") as handle:
+                handle.write(data)
+        except OSError as exc:
+            raise OptionError(f"{target.option}: cannot write '{shown(target.given)}' ({exc.strerror or exc})") from None
+        return
+    _replace_atomically(Path(os.path.realpath(target.given)), data, target.option)
+
+
+def _replace_atomically(real: Path, data: bytes, option: str) -> None:
+    folder = real.parent
+    try:
+        mode = stat.S_IMODE(real.stat().st_mode)
+    except FileNotFoundError:
+        mode = None
+    tmp = folder / f".{real.name[:200]}.{secrets.token_hex(4)}.tmp"
+    try:
+        fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666 if mode is None else 0o600)
+    except OSError as exc:
+        raise OptionError(f"{option}: cannot write into '{shown(folder)}' ({exc.strerror or exc})") from None
+    try:
+        with os.fdopen(fd, "wb") as handle:
+            handle.write(data)
+        if mode is not None:
+            os.chmod(tmp, mode)  # a replaced file keeps its permissions
+        os.replace(tmp, real)
+    except BaseException as exc:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        if isinstance(exc, OSError):
+            raise OptionError(f"{option}: cannot write '{shown(real)}' ({exc.strerror or exc})") from None
+        raise
+
+
+def check_table_folder(option: str, folder: str | Path, files: dict[str, str],
+                       inputs: list[str | Path | None]) -> dict[str, str]:
+    """Check that every file of ``files`` may be written into ``folder`` (see the module's rules);
+    returns the folder's record of the files this tool wrote there before."""
+    path = Path(folder)
+    check_folder(option, str(folder))
+    manifest = _read_manifest(path, option)
+    input_ids = {_identity(Path(s)) for s in inputs if s is not None} - {None}
+    for name in files:
+        existing = path / name
+        if existing.is_symlink() or (existing.exists() and not existing.is_file()):
+            raise OptionError(f"{option}: '{shown(existing)}' exists and is not a plain file; choose another folder")
+        if not existing.exists():
+            continue
+        if _identity(existing) in input_ids:
+            raise OptionError(f"{option}: refusing to write '{shown(existing)}': it is an input file")
+        if manifest.get(name) != _checksum(existing.read_bytes()):
+            raise OptionError(f"{option}: '{shown(existing)}' exists and was not written by cfa-tool (or was changed since); "
+                              f"choose an empty folder, or move that file")
+    return manifest
+
+
+def write_table_folder(option: str, folder: str | Path, files: dict[str, str], inputs: list[str | Path | None]) -> None:
+    """Write ``files`` (name -> text) into ``folder``; nothing is written unless every file can be."""
+    path = Path(folder)
+    manifest = check_table_folder(option, folder, files, inputs)
+    try:
+        path.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise OptionError(f"{option}: cannot create the folder '{shown(folder)}' ({exc.strerror or exc})") from None
+    for name, text in files.items():
+        data = text.encode("utf-8")
+        _replace_atomically(path / name, data, option)
+        manifest[name] = _checksum(data)
+    _replace_atomically(path / MANIFEST, json.dumps({"written by": _MANIFEST_MARK, "files": manifest}, indent=1,
+                                                     sort_keys=True).encode("utf-8"), option)
+
+
+def _checksum(data: bytes) -> str:
+    return hashlib.sha256(data).hexdigest()
+
+
+def _read_manifest(folder: Path, option: str) -> dict[str, str]:
+    record = folder / MANIFEST
+    if not record.exists():
+        return {}
+    try:
+        content = json.loads(record.read_text(encoding="utf-8"))
+        if content.get("written by") != _MANIFEST_MARK:
+            raise ValueError
+        return {str(k): str(v) for k, v in content["files"].items()}
+    except (OSError, ValueError, AttributeError, KeyError, TypeError):
+        raise OptionError(f"{option}: '{shown(record)}' exists but is not this tool's record of the tables it wrote; "
+                          f"choose another folder") from None
