@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import os
 from dataclasses import replace
 from pathlib import Path
 
@@ -16,21 +17,35 @@ from cfa_tool.data.readers import LoadedData, read_data
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file, summary_moments
 from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.fitting import FitOptions, fit_moments
-from cfa_tool.language.parser import parse_model, read_model_file
+from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec
 from cfa_tool.results import FitResult
 
 
-def load_spec(model: str | Path | Spec) -> Spec:
-    """A Spec from model text, a path to a model file, or a Spec."""
+def load_spec(model: str | os.PathLike | Spec) -> Spec:
+    """A Spec from model text, a model file or a parsed Spec, by explicit rules (the file system
+    is never tried on arbitrary text):
+
+    * a ``pathlib.Path`` (or other path object) is a model file;
+    * a string of one line ending in the model extension ``.cfa`` is a model file;
+    * any other string is model text.
+    """
     if isinstance(model, Spec):
         return model
-    if isinstance(model, Path):
+    if isinstance(model, os.PathLike):
         return read_model_file(model)
     if isinstance(model, str):
-        if "\n" not in model and (model.endswith(".cfa") or Path(model).is_file()):
-            return read_model_file(model)
-        return parse_model(model, source="<model text>")
+        if "\n" not in model and model.strip().lower().endswith(MODEL_SUFFIX):
+            return read_model_file(model.strip())
+        try:
+            return parse_model(model, source="<model text>")
+        except ModelError as exc:
+            one_line = model.strip()
+            if one_line and not any(ch.isspace() or ch == ":" for ch in one_line):  # one word: a file name?
+                raise ModelError(f"{exc.message} (the text was read as model text; to read a model file, pass a "
+                                 f"pathlib.Path or give the file the {MODEL_SUFFIX} extension)",
+                                 exc.location, exc.source_line) from None
+            raise
     raise OptionError(f"model must be model text, a path or a parsed specification, not {type(model).__name__}")
 
 
@@ -71,11 +86,11 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=()) -
         raise OptionError(f"{loaded.source}: the column name '{dup}' appears more than once")
     if not all(type(c) is str for c in frame.columns):  # column labels as text (a renamed copy only when needed)
         frame = frame.set_axis(columns, axis=1)
-    notes: list[str] = []
+    notes: list[str] = list(loaded.notes)
     if keep:
         frame, notes = apply_filters(frame, [parse_filter(k) for k in keep], loaded.source)
     check_columns(spec, columns, loaded.source)
-    return spec, LoadedData(frame, loaded.source, loaded.variable_labels, loaded.value_labels), notes
+    return spec, replace(loaded, frame=frame), notes
 
 
 def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,

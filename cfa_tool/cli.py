@@ -219,12 +219,6 @@ def _report_error(exc: CfaError) -> None:
 
 
 def _run(args: argparse.Namespace) -> int:
-    if args.command == "check":
-        from cfa_tool.api import check
-
-        spec = check(args.model, args.data, group=args.group, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep)
-        print(f"{args.model}: model is valid: {len(spec.factors)} factors, {len(spec.observed_names)} indicators, all found in {args.data}")
-        return 0
     if args.command == "demo":
         from cfa_tool.resources import resource_dir
 
@@ -233,6 +227,17 @@ def _run(args: argparse.Namespace) -> int:
         args.model = str(resource_dir("models") / "rider_three_factors.cfa")
         args.data = str(resource_dir("demo") / "rider_survey.csv")
     _check_output(args, _inputs(args))
+    # model files are paths, never model text (cfa_tool.api.load_spec reads a Path as a file)
+    if getattr(args, "model", None):
+        args.model = Path(args.model)
+    if getattr(args, "models", None):
+        args.models = [Path(m) for m in args.models]
+    if args.command == "check":
+        from cfa_tool.api import check
+
+        spec = check(args.model, args.data, group=args.group, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep)
+        print(f"{args.model}: model is valid: {len(spec.factors)} factors, {len(spec.observed_names)} indicators, all found in {args.data}")
+        return 0
     if args.command == "demo":
         return _fit_and_report(args, args.model, args.data)
     if args.command == "compare":

@@ -75,8 +75,14 @@ class ModelError(UserInputError):
         if self.location is None or self.source_line is None:
             return ""
         line = self.source_line
-        before = printable(line[: max(0, self.location.column - 1)])
-        return f"    {printable(line)}\n    {' ' * len(before)}^"
+        start = max(0, self.location.column - 1)
+        head = printable(line[:start])
+        tail = printable(line[start:])
+        if len(head) > 60:  # a long line is shown around the place, as '...' + about 100 characters + '...'
+            head = "..." + head[-57:]
+        if len(tail) > 60:
+            tail = tail[:57] + "..."
+        return f"    {head}{tail}\n    {' ' * len(head)}^"
 
 
 class DataError(UserInputError):

@@ -11,12 +11,13 @@ from __future__ import annotations
 
 import csv
 import io
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import pandas as pd
 
-from cfa_tool.errors import DataError
+from cfa_tool.errors import DataError, printable
+from cfa_tool.input_files import check_input_path, input_bytes, utf16_text
 
 _DELIMITERS = ",;\t|"
 
@@ -27,6 +28,7 @@ class LoadedData:
     source: str
     variable_labels: dict[str, str] = field(default_factory=dict)
     value_labels: dict[str, dict] = field(default_factory=dict)
+    notes: tuple[str, ...] = ()  # what reading the file did that the report should say
 
 
 EXCEL_SUFFIXES = (".xlsx", ".xlsm")
@@ -37,37 +39,33 @@ STATA_SUFFIXES = (".dta",)
 def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = ()) -> LoadedData:
     """Any supported file -> LoadedData; ``missing_codes`` are values that mean 'no answer'."""
     path = Path(path)
-    _check_path(path)
     suffix = path.suffix.lower()
+    binary = suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES
+    st = check_input_path(path, "data file", DataError, regular_only=binary)
+    if binary and st.st_size == 0:
+        raise DataError(f"data file '{path}' is empty")
     if sheet is not None and suffix not in EXCEL_SUFFIXES:
         raise DataError(f"'{path}' is not an Excel workbook, so a sheet cannot be chosen")
     if suffix in EXCEL_SUFFIXES:
-        loaded = LoadedData(_read_excel(path, sheet), str(path))
+        notes: list[str] = []
+        loaded = LoadedData(_read_excel(path, sheet, notes), str(path), notes=tuple(notes))
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _read_labelled(path)
     elif suffix in (".xls",):
         raise DataError(f"'{path}' is an old-style Excel file; save it as .xlsx or CSV")
     else:
-        loaded = LoadedData(read_table(path), str(path))
+        notes = []
+        loaded = LoadedData(read_table(path, notes), str(path), notes=tuple(notes))
     if missing_codes:
         frame = loaded.frame.copy()
         for column in frame.columns:
             if pd.api.types.is_numeric_dtype(frame[column]):
                 frame[column] = frame[column].where(~frame[column].isin(missing_codes))
-        loaded = LoadedData(frame, loaded.source, loaded.variable_labels, loaded.value_labels)
+        loaded = replace(loaded, frame=frame)
     return loaded
 
 
-def _check_path(path: Path) -> None:
-    if not path.exists():
-        raise DataError(f"data file '{path}' does not exist")
-    if path.is_dir():
-        raise DataError(f"'{path}' is a folder, not a data file")
-    if path.stat().st_size == 0:
-        raise DataError(f"data file '{path}' is empty")
-
-
-def _read_excel(path: Path, sheet: str | None) -> pd.DataFrame:
+def _read_excel(path: Path, sheet: str | None, notes: list[str]) -> pd.DataFrame:
     try:
         import openpyxl
     except ImportError:  # pragma: no cover - a declared dependency
@@ -93,14 +91,26 @@ def _read_excel(path: Path, sheet: str | None) -> pd.DataFrame:
     header = [None if h is None else str(h).strip() for h in rows[0]]
     while header and header[-1] in (None, ""):
         header.pop()
+    row_names = len(header) > 1 and not header[0]
     for position, name in enumerate(header, start=1):
-        if not name:
+        if not name and not (position == 1 and row_names):
             raise DataError(f"{path} (sheet '{ws.title}'): column {position} of the header row has no name")
     _check_duplicates(header, f"{path} (sheet '{ws.title}')")
-    body = [list(r[: len(header)]) for r in rows[1:] if any(v is not None for v in r[: len(header)])]
+    width = len(header)
+    for number, r in enumerate(rows[1:], start=2):
+        beyond = [k for k, v in enumerate(r[width:], start=width + 1) if v not in (None, "")]
+        if beyond:
+            raise DataError(f"{path} (sheet '{ws.title}'): row {number} has a value in column {beyond[0]}, which has "
+                            f"no name in the header row")
+    body = [list(r[:width]) for r in rows[1:] if any(v is not None for v in r[:width])]
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
-    return pd.DataFrame(body, columns=header)
+    frame = pd.DataFrame(body, columns=header)
+    if row_names:
+        frame = frame.iloc[:, 1:]
+        notes.append(f"{path} (sheet '{ws.title}'): the first column has no name in the header and was read as row "
+                     f"names, not as data")
+    return frame
 
 
 def _read_labelled(path: Path) -> LoadedData:
@@ -130,40 +140,160 @@ def _check_duplicates(header: list[str], where: str) -> None:
         seen.add(name)
 
 
-def read_table(path: str | Path) -> pd.DataFrame:
-    """A delimited text file as a DataFrame."""
+MAX_TEXT_BYTES = 1_000_000_000  # a delimited data file
+
+
+def decode_table_bytes(raw: bytes) -> str:
+    """UTF-8 (with or without a byte-order mark), UTF-16, or else the Windows Western code page
+    (cp1252, a superset of Latin-1 for printable characters) as spreadsheet programs save it."""
+    wide = utf16_text(raw)
+    if wide is not None:
+        return wide
+    try:
+        return raw.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        pass
+    try:
+        return raw.decode("cp1252")
+    except UnicodeDecodeError:
+        return raw.decode("latin-1")
+
+
+def _records(text: str, delimiter: str, limit: int | None = None):
+    """(line number, fields) of each record that is not blank; quoted fields may span lines."""
+    reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
+    line = 1
+    while True:
+        try:
+            fields = next(reader)
+        except StopIteration:
+            return
+        except csv.Error as exc:
+            raise DataError(f"line {reader.line_num}: {exc}") from None
+        if fields and any(f.strip() for f in fields):
+            yield line, fields
+            if limit is not None:
+                limit -= 1
+                if limit <= 0:
+                    return
+        line = reader.line_num + 1
+
+
+def _delimiter(text: str) -> str:
+    """The delimiter that splits the header into the most names and the first rows into as many
+    fields as the header (quotes respected, so a ';' inside a quoted name does not count)."""
+    best, best_score = ",", (-1.0, 0)
+    for delimiter in _DELIMITERS:
+        if delimiter not in text[:100_000]:
+            continue
+        try:
+            records = [fields for _, fields in _records(text, delimiter, limit=50)]
+        except DataError:
+            continue
+        if not records or len(records[0]) < 2:
+            continue
+        width = len(records[0])
+        body = records[1:] or records
+        consistent = sum(len(r) == width for r in body) / len(body)
+        score = (consistent, width)
+        if score > best_score:
+            best, best_score = delimiter, score
+    return best
+
+
+def _check_field_counts(text: str, delimiter: str, named: int, width: int, path: Path) -> int:
+    """Every data record must have a field for each of the ``named`` columns and no values beyond
+    them.  Empty fields after them (a delimiter at the end of each line, as some programs write
+    them; ``width`` fields in the header line) are accepted.  Returns the largest number of fields
+    in a record."""
+    widest = width
+    records = _records(text, delimiter)
+    next(records, None)  # the header
+    for line, fields in records:
+        n = len(fields)
+        if n == named or (n > named and not any(f.strip() for f in fields[named:])):
+            widest = max(widest, n)
+            continue
+        if named < n <= width:
+            column = next(k for k in range(named, n) if fields[k].strip()) + 1
+            raise DataError(f"{path}: line {line} has a value in column {column}, which has no name in the header")
+        others = [d for d in _DELIMITERS if d != delimiter and d in delimiter.join(fields)]
+        hint = (f"; the line holds '{_shown_delimiter(others[0])}', while the header is separated by "
+                f"'{_shown_delimiter(delimiter)}'") if others and n == 1 else ""
+        more = "more" if n > named else "fewer"
+        raise DataError(f"{path}: line {line} has {n} fields but the header has {named} ({more} than the header{hint}); "
+                        f"every row needs one value (or an empty field) per column")
+    return widest
+
+
+def _shown_delimiter(d: str) -> str:
+    return {"\t": "tab", ",": ",", ";": ";", "|": "|"}[d]
+
+
+def read_table(path: str | Path, notes: list[str] | None = None) -> pd.DataFrame:
+    """A delimited text file as a DataFrame.  ``notes`` receives what was done to read it that the
+    report should mention (empty fields dropped at the ends of rows, a row-name column)."""
     path = Path(path)
-    _check_path(path)
-    raw = path.read_bytes()
+    raw = input_bytes(path, "data file", DataError, MAX_TEXT_BYTES)
     if not raw.strip():
         raise DataError(f"data file '{path}' is empty")
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError:
-        text = raw.decode("latin-1")
+    text = decode_table_bytes(raw)
     if "\x00" in text:
         raise DataError(f"data file '{path}' is not a text file (it contains NUL bytes); save it as CSV")
-    first_line = text.splitlines()[0]
-    delimiter = max(_DELIMITERS, key=first_line.count) if any(d in first_line for d in _DELIMITERS) else ","
-    header = next(csv.reader([first_line], delimiter=delimiter))
+    delimiter = _delimiter(text)
+    first = next(_records(text, delimiter, limit=1), None)
+    if first is None:
+        raise DataError(f"data file '{path}' is empty")
+    header_line, header = first
     header = [h.strip() for h in header]
+    trailing = 0
+    while len(header) > 1 and not header[-1]:  # a delimiter at the end of the header line
+        header.pop()
+        trailing += 1
+    row_names = len(header) > 1 and not header[0]
     for position, name in enumerate(header, start=1):
-        if not name:
-            raise DataError(f"{path}: column {position} of the header has no name")
+        if not name and not (position == 1 and row_names):
+            raise DataError(f"{path}: line {header_line}: column {position} of the header has no name")
     _check_duplicates(header, str(path))
+    widest = _check_field_counts(text, delimiter, len(header), len(header) + trailing, path)
+    body_start = _offset_of_line(text, header_line)
     try:
         frame = pd.read_csv(
-            io.StringIO(text),
+            io.StringIO(text[body_start:]),
             sep=delimiter,
+            header=0,
+            names=list(range(widest)),
+            usecols=list(range(len(header))),
+            index_col=False,
             decimal="," if delimiter == ";" else ".",
             skipinitialspace=True,
             na_values=["", "NA", "N/A", "NaN", "nan", "."],
             keep_default_na=False,
         )
-    except (pd.errors.ParserError, ValueError) as exc:
+    except (pd.errors.ParserError, ValueError, OverflowError) as exc:
         detail = str(exc).strip().splitlines()[-1] if str(exc).strip() else "cannot be parsed"
-        raise DataError(f"{path}: the file cannot be read as a table ({detail})") from None
+        raise DataError(f"{path}: the file cannot be read as a table ({printable(detail)})") from None
     frame.columns = header
     if len(frame) == 0:
         raise DataError(f"data file '{path}' has a header but no rows of data")
+    empty = widest - len(header)
+    if empty and notes is not None:
+        notes.append(f"{path}: empty fields at the end of the lines (a delimiter after the last value) were ignored")
+    if row_names:
+        frame = frame.iloc[:, 1:]
+        if notes is not None:
+            notes.append(f"{path}: the first column has no name in the header and was read as row names, not as data")
     return frame
+
+
+def _offset_of_line(text: str, line: int) -> int:
+    """Character offset of the start of 1-based ``line`` (lines end at LF, CR LF or CR)."""
+    if line <= 1:
+        return 0
+    offset = 0
+    for _ in range(line - 1):
+        nl = min((i for i in (text.find("\n", offset), text.find("\r", offset)) if i >= 0), default=-1)
+        if nl < 0:
+            return len(text)
+        offset = nl + (2 if text.startswith("\r\n", nl) else 1)
+    return offset

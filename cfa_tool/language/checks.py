@@ -46,8 +46,15 @@ def existing_parameters(spec: Spec) -> set[tuple]:
     return keys
 
 
+#: Limits on a model's size, far above any questionnaire, that keep checks and fitting within reach
+MAX_INDICATORS = 2_000
+MAX_FACTORS = 500
+
+
 def check_spec(spec: Spec) -> None:
+    _check_size(spec)
     _check_factors(spec)
+    _check_scaling(spec)
     _check_ordinal(spec)
     _check_pairs(spec)
     _check_references(spec)
@@ -70,23 +77,55 @@ def _check_factors(spec: Spec) -> None:
             if ind.text == name.text:
                 raise _fail(spec, f"factor '{name}' cannot be an indicator of itself", ind.location)
             inds.add(ind.text)
-    # circular higher-order structures: follow "factor -> its latent indicators"
+    # circular higher-order structures: follow "factor -> its latent indicators" (depth first, with an
+    # explicit stack, so that long chains of higher-order factors need no recursion)
     children = {f.name.text: [i.text for i in f.indicators if i.text in seen] for f in spec.factors}
     state: dict[str, int] = {}
+    for root in seen:
+        if root in state:
+            continue
+        path = [root]
+        state[root] = 1
+        stack = [iter(children[root])]
+        while stack:
+            child = next(stack[-1], None)
+            if child is None:
+                state[path.pop()] = 2
+                stack.pop()
+            elif state.get(child) == 1:
+                cycle = path[path.index(child) :] + [child]
+                raise _fail(spec, "factors cannot indicate each other in a circle: " + " -> ".join(cycle), seen[path[-1]])
+            elif child not in state:
+                state[child] = 1
+                path.append(child)
+                stack.append(iter(children[child]))
 
-    def visit(node: str, path: list[str]) -> None:
-        state[node] = 1
-        for child in children[node]:
-            if state.get(child) == 1:
-                cycle = path[path.index(child) :] + [child] if child in path else [node, child]
-                raise _fail(spec, "factors cannot indicate each other in a circle: " + " -> ".join(cycle), seen[node])
-            if state.get(child) is None:
-                visit(child, path + [child])
-        state[node] = 2
 
-    for name in seen:
-        if name not in state:
-            visit(name, [name])
+def _check_size(spec: Spec) -> None:
+    if len(spec.factors) > MAX_FACTORS:
+        factor = spec.factors[MAX_FACTORS]
+        raise _fail(spec, f"the model declares {len(spec.factors):,} factors; this tool fits at most {MAX_FACTORS:,}",
+                    factor.name.location)
+    indicators = spec.observed_names
+    if len(indicators) > MAX_INDICATORS:
+        raise _fail(spec, f"the model has {len(indicators):,} indicators; this tool fits at most {MAX_INDICATORS:,}",
+                    spec.first_mention(indicators[MAX_INDICATORS]))
+
+
+def _check_scaling(spec: Spec) -> None:
+    """Every factor a 'scale' statement names must be a factor of the model."""
+    factors = set(spec.factor_names)
+    for setting in spec.scaling:
+        for name in setting.factors:
+            if name.text not in factors:
+                guess = difflib.get_close_matches(name.text, spec.factor_names, n=1)
+                if guess:
+                    hint = f"; did you mean '{guess[0]}'?"
+                elif name.text in set(spec.observed_names):
+                    hint = "; it is an indicator, and only factors are scaled"
+                else:
+                    hint = f"; the factors are {', '.join(spec.factor_names[:10])}" + (", ..." if len(factors) > 10 else "")
+                raise _fail(spec, f"'scale' names '{name}', which is not a factor of this model{hint}", name.location)
 
 
 def _check_ordinal(spec: Spec) -> None:
@@ -241,7 +280,12 @@ def _check_indicator_counts(spec: Spec) -> None:
     constrained = fixed_keys | {r.key() for g in spec.equal for r in g}
     exo = exogenous_factors(spec)
     zero = {p.key() for p in spec.uncorrelated}
-    covaried = {p.key() for p in spec.covary}
+    covary_partners: dict[str, list[str]] = {}
+    for pair in spec.covary:
+        a, b = pair.key()
+        covary_partners.setdefault(a, []).append(b)
+        covary_partners.setdefault(b, []).append(a)
+    exo_set = set(exo)
     for factor in spec.factors:
         name = factor.name.text
         inds = [i.text for i in factor.indicators]
@@ -255,10 +299,10 @@ def _check_indicator_counts(spec: Spec) -> None:
                 )
         elif len(inds) == 2:
             loads_constrained = sum(("loading", (name, x)) in constrained for x in inds) >= 2
-            if name in exo:
-                partners = [o for o in exo if o != name and tuple(sorted((name, o))) not in zero]
+            if name in exo_set:
+                partners = [o for o in exo if o != name and tuple(sorted((name, o))) not in zero][:1]
             else:
-                partners = [p for p in covaried if name in p] or ["(higher-order factor)"]
+                partners = covary_partners.get(name) or ["(higher-order factor)"]
             if not partners and not loads_constrained:
                 raise _fail(
                     spec,

@@ -17,7 +17,8 @@ from pathlib import Path
 from lark import Lark, Token, Tree
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
-from cfa_tool.errors import Location, ModelError
+from cfa_tool.errors import Location, ModelError, printable
+from cfa_tool.input_files import input_bytes, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.language.spec import (
     INVARIANCE_CLASSES,
     REFERENCE_KINDS,
@@ -47,6 +48,14 @@ _TERMINAL_WORDS = {
 }
 
 MAX_MODEL_BYTES = 1_000_000
+MODEL_SUFFIX = ".cfa"  # the extension of model files
+MAX_RANGE = 2_000  # names in one range such as item1..item9
+MAX_PAIRS = 20_000  # pairs named by 'covary' and 'uncorrelated' in one model
+
+
+def _clip(text: object, width: int = 40) -> str:
+    text = str(text)
+    return text if len(text) <= width else text[: width - 3] + "..."
 
 
 @lru_cache(maxsize=1)
@@ -57,19 +66,15 @@ def _parser() -> Lark:
 
 def read_model_file(path: str | Path) -> Spec:
     """Read and parse a model file, with errors that name the file."""
-    path = Path(path)
-    if not path.exists():
-        raise ModelError(f"model file '{path}' does not exist")
-    if path.is_dir():
-        raise ModelError(f"'{path}' is a folder, not a model file")
-    size = path.stat().st_size
-    if size > MAX_MODEL_BYTES:
-        raise ModelError(f"model file '{path}' is {size:,} bytes; a model file is at most {MAX_MODEL_BYTES:,} bytes")
-    raw = path.read_bytes()
+    raw = input_bytes(path, "model file", ModelError, MAX_MODEL_BYTES)
     return parse_model(decode_model_bytes(raw, str(path)), source=str(path))
 
 
 def decode_model_bytes(raw: bytes, source: str) -> str:
+    """UTF-8 (with or without a byte-order mark) or UTF-16 text."""
+    wide = utf16_text(raw)
+    if wide is not None:
+        return wide
     try:
         return raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
@@ -96,7 +101,8 @@ def _parse_model(text: str, source: str) -> Spec:
 
     if "\x00" in text:
         raise ModelError("the model text contains a NUL character; is this a binary file?", Location(source, 1, 1))
-    lines = tuple(text.splitlines())
+    text = normalise_line_ends(text)
+    lines = tuple(text_lines(text))
     if not text.endswith("\n"):
         text += "\n"
     try:
@@ -120,6 +126,7 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
         message = "the model text ends in the middle of a statement"
     elif isinstance(exc, UnexpectedCharacters):
         char = exc.char if exc.char not in "\r\n" else "line break"
+        char = printable(char)
         message = f"unexpected character '{char}'"
         if char == "'":
             message += ' (use double quotes for quoted names and titles)'
@@ -133,7 +140,7 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
 
 def _unexpected_token_message(exc: UnexpectedToken) -> str:
     token = exc.token
-    shown = "the end of the line" if token.type == "_NL" else f"'{token}'"
+    shown = "the end of the line" if token.type == "_NL" else f"'{_clip(token)}'"
     expected = sorted(exc.accepts or exc.expected)
     words = [_terminal_word(name) for name in expected]
     if "'factor'" in words:  # the parser wanted a new statement
@@ -214,6 +221,10 @@ class _Builder:
                 if len(names) < 2:
                     word = kind.split("_")[0]
                     raise self.error(f"'{word}' needs at least two names", stmt)
+                n_pairs = len(names) * (len(names) - 1) // 2
+                if n_pairs + len(covary) + len(uncorrelated) > MAX_PAIRS:
+                    raise self.error(f"'{kind.split('_')[0]}' with {len(names):,} names makes {n_pairs:,} pairs; a model "
+                                     f"names at most {MAX_PAIRS:,} pairs in all", stmt)
                 pairs = [NamePair(a, b) for i, a in enumerate(names) for b in names[i + 1 :]]
                 (covary if kind == "covary_stmt" else uncorrelated).extend(pairs)
             elif kind == "fix_stmt":
@@ -298,11 +309,14 @@ class _Builder:
             raise self.error(f"a range such as 'item1..item9' needs names ending in numbers; got '{first}..{last}'", first)
         if m1.group(1) != m2.group(1):
             raise self.error(f"the two ends of the range '{first}..{last}' must share the prefix before the number", first)
+        if max(len(m1.group(2)), len(m2.group(2))) > 9:
+            raise self.error(f"the numbers of the range '{_clip(first)}..{_clip(last)}' are too long (at most 9 digits)", first)
         lo, hi = int(m1.group(2)), int(m2.group(2))
         if lo > hi:
             raise self.error(f"the range '{first}..{last}' counts down; write the smaller number first", first)
-        if hi - lo >= 10_000:
-            raise self.error(f"the range '{first}..{last}' names more than 10,000 variables", first)
+        if hi - lo >= MAX_RANGE:
+            raise self.error(f"the range '{first}..{last}' names {hi - lo + 1:,} variables; a range names at most "
+                             f"{MAX_RANGE:,}", first)
         width = len(m1.group(2)) if m1.group(2).startswith("0") else 0
         location = self.loc(first)
         return [Name(f"{m1.group(1)}{str(i).zfill(width)}", location) for i in range(lo, hi + 1)]

@@ -8,6 +8,7 @@ point at it.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import cached_property
 
 from cfa_tool.errors import Location
 
@@ -121,11 +122,11 @@ class Spec:
     ordinal: tuple[Name, ...] = ()
     lines: tuple[str, ...] = field(default=(), repr=False, compare=False)
 
-    @property
+    @cached_property
     def factor_names(self) -> tuple[str, ...]:
         return tuple(f.name.text for f in self.factors)
 
-    @property
+    @cached_property
     def observed_names(self) -> tuple[str, ...]:
         """Indicators that are not factors, in order of first appearance."""
         latent = set(self.factor_names)

@@ -1,0 +1,101 @@
+"""Reading the user's input files (model, data, summary statistics) safely.
+
+Every reader goes through :func:`input_bytes` or :func:`check_input_path`, so that a
+missing file, a folder, an overlong name, a file without read permission, a device
+that never ends (``/dev/zero``) or a file far larger than any questionnaire data set
+each get one plain sentence naming the file, never a traceback or a hang.  Input files
+are only ever opened for reading.
+"""
+
+from __future__ import annotations
+
+import errno
+import os
+import stat
+from pathlib import Path
+
+from cfa_tool.errors import UserInputError, printable
+
+
+def _short(path: str | Path) -> str:
+    text = printable(str(path))
+    return text if len(text) <= 200 else text[:120] + "..." + text[-60:]
+
+
+def check_input_path(path: str | Path, what: str, error: type[UserInputError],
+                     regular_only: bool = False) -> os.stat_result:
+    """The file's status, or ``error`` with a plain sentence: it does not exist, is a folder,
+    has a name too long for the system, or (with ``regular_only``) is a device or pipe."""
+    path = Path(path)
+    try:
+        st = path.stat()
+    except FileNotFoundError:
+        raise error(f"{what} '{_short(path)}' does not exist") from None
+    except NotADirectoryError:
+        raise error(f"{what} '{_short(path)}' does not exist (a part of the path is a file, not a folder)") from None
+    except PermissionError:
+        raise error(f"{what} '{_short(path)}' cannot be read (permission denied)") from None
+    except OSError as exc:
+        if exc.errno == errno.ENAMETOOLONG:
+            raise error(f"{what} '{_short(path)}': the name is too long for the file system "
+                        f"(at most 255 characters per folder or file name)") from None
+        raise error(f"{what} '{_short(path)}' cannot be opened ({exc.strerror or exc})") from None
+    except ValueError:  # a NUL character in the path
+        raise error(f"{what} '{_short(path)}': the name holds a NUL character") from None
+    if stat.S_ISDIR(st.st_mode):
+        raise error(f"'{_short(path)}' is a folder, not a {what}")
+    if regular_only and not stat.S_ISREG(st.st_mode):
+        raise error(f"'{_short(path)}' is not a regular file (a device or a pipe); save the {what} as a file")
+    return st
+
+
+def input_bytes(path: str | Path, what: str, error: type[UserInputError], limit: int) -> bytes:
+    """The content of an input file, read with a size limit (devices and pipes report no size,
+    so the limit is applied while reading)."""
+    path = Path(path)
+    st = check_input_path(path, what, error)
+    if stat.S_ISREG(st.st_mode) and st.st_size > limit:
+        raise error(f"{what} '{_short(path)}' is {st.st_size:,} bytes; a {what} is at most {limit:,} bytes")
+    try:
+        with open(path, "rb") as handle:
+            data = handle.read(limit + 1)
+    except PermissionError:
+        raise error(f"{what} '{_short(path)}' cannot be read (permission denied)") from None
+    except OSError as exc:
+        raise error(f"{what} '{_short(path)}' cannot be read ({exc.strerror or exc})") from None
+    if len(data) > limit:
+        raise error(f"{what} '{_short(path)}' holds more than {limit:,} bytes; a {what} is at most {limit:,} bytes")
+    return data
+
+
+def utf16_text(raw: bytes) -> str | None:
+    """Text of a UTF-16 file (as some Windows programs save 'Unicode text'), recognised by its
+    byte-order mark, or by NUL bytes in every other position of ASCII text; None otherwise."""
+    if raw.startswith((b"\xff\xfe", b"\xfe\xff")):
+        try:
+            return raw.decode("utf-16")
+        except UnicodeDecodeError:
+            return None
+    sample = raw[:2000]
+    if len(sample) >= 4 and len(sample) % 2 == 0:
+        for encoding, zeros in (("utf-16-le", sample[1::2]), ("utf-16-be", sample[0::2])):
+            if zeros.count(0) == len(zeros):
+                try:
+                    return raw.decode(encoding)
+                except UnicodeDecodeError:
+                    return None
+    return None
+
+
+def normalise_line_ends(text: str) -> str:
+    """Windows (CR LF) and old Macintosh (CR) line ends as LF."""
+    return text.replace("\r\n", "\n").replace("\r", "\n") if "\r" in text else text
+
+
+def text_lines(text: str) -> list[str]:
+    """Lines split at LF only, as parsers and editors count them (``str.splitlines`` also splits at
+    form feeds, U+0085, U+2028 and other separators, which would put messages on the wrong line)."""
+    lines = text.split("\n")
+    if lines and lines[-1] == "":
+        lines.pop()
+    return lines
