@@ -15,6 +15,7 @@ from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file, summary_moments
+from cfa_tool import options as opt
 from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.fitting import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
@@ -49,6 +50,37 @@ def load_spec(model: str | os.PathLike | Spec) -> Spec:
     raise OptionError(f"model must be model text, a path or a parsed specification, not {type(model).__name__}")
 
 
+def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), keep=(), group: str | None = None) -> None:
+    """Options about rows and columns of raw data cannot apply to summary statistics: each is an
+    error rather than silently ignored."""
+    given = [name for name, value in (("a sheet (--sheet)", sheet), ("missing-value codes (--missing-codes)", missing_codes),
+                                      ("row filters (--keep)", keep), ("groups (--group)", group)) if value]
+    if given:
+        raise OptionError(f"{source} holds summary statistics, not rows of data, so {given[0]} cannot apply; "
+                          f"remove the option or give the raw data")
+
+
+def summary_source(data) -> bool:
+    """Whether ``data`` names a summary-statistics file (by its extension)."""
+    return isinstance(data, (str, os.PathLike)) and Path(data).suffix.lower() == SUMMARY_SUFFIX
+
+
+def missing_codes_option(codes) -> tuple[float, ...]:
+    """Values that mean 'no answer': a list of numbers, or one number."""
+    if codes is None:
+        return ()
+    if isinstance(codes, (int, float)) and not isinstance(codes, bool):
+        codes = (codes,)
+    if isinstance(codes, (str, bytes)) or not hasattr(codes, "__iter__"):
+        raise OptionError(f"missing_codes must be a list of numbers, not {type(codes).__name__}")
+    out = []
+    for code in codes:
+        if isinstance(code, bool) or not isinstance(code, (int, float, np.integer, np.floating)):
+            raise OptionError(f"missing_codes must hold numbers only, not {code!r}"[:120])
+        out.append(float(code))
+    return tuple(out)
+
+
 def load_frame(data: pd.DataFrame | str | Path, sheet: str | None = None,
                missing_codes: tuple[float, ...] = ()) -> tuple[pd.DataFrame, str]:
     loaded = load_data(data, sheet, missing_codes)
@@ -56,6 +88,7 @@ def load_frame(data: pd.DataFrame | str | Path, sheet: str | None = None,
 
 
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = ()) -> LoadedData:
+    missing_codes = missing_codes_option(missing_codes)
     if isinstance(data, pd.DataFrame):
         frame = data
         if missing_codes:
@@ -146,9 +179,10 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     standard errors and fit indices.
     """
     fit_options = make_options(options)
-    if covariance is not None or (isinstance(data, (str, Path)) and Path(data).suffix.lower() == SUMMARY_SUFFIX):
-        if group is not None:
-            raise OptionError("groups need raw data; summary statistics describe one group")
+    if covariance is not None or summary_source(data):
+        refuse_row_options("a covariance matrix" if covariance is not None else f"'{data}'", sheet, missing_codes, keep, group)
+        if ordinal:
+            raise OptionError("ordinal items need the raw answers, not summary statistics")
         spec = load_spec(model)
         if covariance is not None:
             if data is not None:
@@ -254,11 +288,15 @@ def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
 def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):
     if n_obs is None:
         raise OptionError("a covariance matrix needs the number of observations (n_obs)")
+    n_obs = opt.observations(n_obs, "n_obs (the number of observations)")
     if isinstance(covariance, pd.DataFrame):
         names = [str(c) for c in covariance.columns]
-        values = covariance.to_numpy(dtype=float)
+        if [str(i) for i in covariance.index] != names and not isinstance(covariance.index, pd.RangeIndex):
+            raise OptionError("the covariance matrix's row names differ from its column names; give the rows in the "
+                              "order of the columns")
+        values = covariance.to_numpy()
     else:
-        values = np.asarray(covariance, dtype=float)
+        values = covariance
         if variables is None:
             raise OptionError("name the variables of the covariance matrix (variables=[...]) or pass a DataFrame")
         names = [str(v) for v in variables]
@@ -266,8 +304,7 @@ def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):
         raise OptionError(f"matrix must be 'covariance' or 'correlation', not '{matrix}'")
     if divisor not in ("n-1", "n"):
         raise OptionError(f"divisor must be 'n-1' or 'n', not '{divisor}'")
-    return summary_moments(names, values, int(n_obs), matrix, None if sds is None else np.asarray(sds, dtype=float),
-                           None if means is None else np.asarray(means, dtype=float), divisor, "<covariance matrix>")
+    return summary_moments(names, values, n_obs, matrix, sds, means, divisor, "<covariance matrix>")
 
 
 def make_options(options: dict) -> FitOptions:
@@ -282,7 +319,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
-    if isinstance(data, (str, Path)) and Path(data).suffix.lower() == SUMMARY_SUFFIX:
+    if summary_source(data):
+        refuse_row_options(f"'{data}'", group=group, **read_options)
         spec = load_spec(model)
         moments, _ = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
@@ -300,8 +338,9 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
               progress=None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               keep: tuple[str, ...] | list[str] = ()):
     """Fit the model, then bootstrap it: returns (FitResult, BootstrapResult)."""
-    from cfa_tool.workflows.bootstrap import bootstrap_fit
+    from cfa_tool.workflows.bootstrap import bootstrap_fit, bootstrap_options
 
+    replications, seed = bootstrap_options(replications, seed, workers)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     continuous_only(spec, "bootstrap")
     moments = sample_moments(frame, spec.observed_names, source)
@@ -315,8 +354,9 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
             workers: int | None = None, cluster: str | None = None, progress=None, sheet: str | None = None,
             missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = ()):
     """Fit the model, then simulate model-specific fit-index cutoffs: returns (FitResult, CutoffResult)."""
-    from cfa_tool.workflows.cutoffs import fit_cutoffs
+    from cfa_tool.workflows.cutoffs import cutoff_options, fit_cutoffs
 
+    replications, seed = cutoff_options(replications, seed, workers)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     continuous_only(spec, "cutoffs")
     result = fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions())

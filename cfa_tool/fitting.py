@@ -58,8 +58,13 @@ class FitOptions:
             raise OptionError(f"test must be one of {', '.join(TEST_CHOICES)}, not '{self.test}'")
         if self.information not in INFORMATION_CHOICES:
             raise OptionError(f"information must be one of {', '.join(INFORMATION_CHOICES)}, not '{self.information}'")
-        if self.mi_top is not None and self.mi_top < 0:
-            raise OptionError("the number of modification indices to show cannot be negative")
+        from cfa_tool import options as check
+
+        object.__setattr__(self, "mi_threshold", check.real_number("the modification-index threshold", self.mi_threshold, 0.0))
+        if self.mi_top is not None:
+            object.__setattr__(self, "mi_top", check.whole_number("the number of modification indices to show", self.mi_top, 0))
+        object.__setattr__(self, "max_iterations",
+                           check.whole_number("the iteration limit", self.max_iterations, 1, check.MAX_ITERATIONS))
         if self.missing not in MISSING_CHOICES:
             raise OptionError(f"missing must be one of {', '.join(MISSING_CHOICES)}, not '{self.missing}'")
         if self.missing == "full-information" and self.test == "satorra-bentler":
@@ -67,8 +72,6 @@ class FitOptions:
         if self.test == "yuan-bentler" and self.missing != "full-information":
             raise OptionError("the Yuan-Bentler test goes with full-information ML (--missing full-information); "
                               "for complete rows use --test satorra-bentler")
-        if self.max_iterations < 1:
-            raise OptionError("the iteration limit must be at least 1")
 
 
 @dataclass(frozen=True)

@@ -11,7 +11,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from cfa_tool.errors import DataError
+from cfa_tool.errors import DataError, printable
 from cfa_tool.estimation.linalg import cholesky_log_det
 
 
@@ -30,9 +30,11 @@ class SampleMoments:
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
-    """The named columns as a float array; non-numeric entries are an error naming the cell."""
+    """The named columns as a float array; anything that is not a number is an error naming the
+    column and the cell: text, TRUE/FALSE, dates and times, complex numbers, and numbers too
+    large for double precision."""
     selected = [frame[name] for name in names]
-    if all(c.dtype.kind in "biuf" for c in selected):  # already numbers: copy them in (a sub-frame costs more)
+    if all(c.dtype.kind in "iuf" for c in selected):  # already numbers: copy them in (a sub-frame costs more)
         out = np.empty((len(frame), len(names)))
         for j, column in enumerate(selected):
             # numpy columns copy straight in; nullable (extension) columns turn their missing marker into NaN
@@ -40,16 +42,55 @@ def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) ->
         return out
     columns = []
     for name, column in zip(names, selected):
-        numeric = pd.to_numeric(column, errors="coerce")
-        bad = numeric.isna() & column.notna()
-        if bad.any():
-            row = int(np.flatnonzero(bad.to_numpy())[0])
-            raise DataError(
-                f"{source}: column '{name}' is used as an indicator but holds text ('{column.iloc[row]}' in data row {row + 1}); "
-                f"indicators must be numbers"
-            )
-        columns.append(numeric.to_numpy(dtype=float))
+        kind = column.dtype.kind
+        if kind in "iuf":
+            columns.append(column.to_numpy(dtype=float, na_value=np.nan))
+            continue
+        if kind == "b" or str(column.dtype) == "boolean":
+            raise DataError(f"{source}: column '{printable(name)}' holds TRUE/FALSE values; indicators must be numbers "
+                            f"(code the answers as 0 and 1 if that is what they mean)")
+        if kind in "mM" or isinstance(column.dtype, pd.DatetimeTZDtype):
+            raise DataError(f"{source}: column '{printable(name)}' holds dates or times; indicators must be numbers")
+        if kind == "c":
+            raise DataError(f"{source}: column '{printable(name)}' holds complex numbers; indicators must be real numbers")
+        columns.append(_object_column(column, name, source))
     return np.column_stack(columns) if columns else np.zeros((len(frame), 0))
+
+
+def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
+    """A column of mixed Python objects (text, numbers, missing values) as floats, cell by cell
+    when needed, so that each kind of bad cell gets its own message."""
+    values = column.to_numpy(dtype=object)
+    out = np.full(len(values), np.nan)
+    for row, value in enumerate(values):
+        if value is None or value is pd.NA or value is pd.NaT or (isinstance(value, float) and value != value):
+            continue
+        where = f"{source}: column '{printable(name)}', data row {row + 1}"
+        if isinstance(value, (bool, np.bool_)):
+            raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
+        if isinstance(value, (complex, np.complexfloating)):
+            raise DataError(f"{where}: holds a complex number; indicators must be real numbers")
+        if isinstance(value, (np.datetime64, np.timedelta64)) or hasattr(value, "isoformat"):
+            raise DataError(f"{where}: holds a date or time; indicators must be numbers")
+        if isinstance(value, (int, float, np.integer, np.floating)):
+            try:
+                out[row] = float(value)
+            except OverflowError:
+                raise DataError(f"{where}: the number is too large to compute with") from None
+            continue
+        text = str(value).strip()
+        try:
+            number = float(text)
+        except (ValueError, OverflowError):
+            number = None
+        if number is None or text.lower() in ("inf", "+inf", "-inf", "infinity", "-infinity", "nan"):
+            if text.lower() in ("true", "false"):
+                raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
+            shown = printable(text if len(text) <= 40 else text[:37] + "...")
+            raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "
+                            f"data row {row + 1}); indicators must be numbers")
+        out[row] = number
+    return out
 
 
 MISSING_CHOICES = ("listwise", "full-information")

@@ -28,8 +28,12 @@ from pathlib import Path
 import numpy as np
 
 from cfa_tool.data.moments import SampleMoments, _check_moments
-from cfa_tool.errors import DataError
+from cfa_tool import options as check
+from cfa_tool.errors import DataError, printable
+from cfa_tool.input_files import input_bytes, normalise_line_ends, text_lines, utf16_text
+from cfa_tool.options import MAX_OBSERVATIONS
 
+MAX_SUMMARY_BYTES = 50_000_000
 KEYS = ("variables", "observations", "matrix", "sd", "means", "divisor", "values")
 SUMMARY_SUFFIX = ".stats"
 
@@ -52,12 +56,16 @@ def _numbers(text: str, where: str) -> list[float]:
 def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
     """Parse a ``.stats`` file into moments (divisor N) and notes for the report."""
     path = Path(path)
-    if not path.exists():
-        raise DataError(f"summary-statistics file '{path}' does not exist")
-    try:
-        lines = path.read_text(encoding="utf-8-sig").splitlines()
-    except UnicodeDecodeError:
-        raise DataError(f"summary-statistics file '{path}' is not UTF-8 text") from None
+    raw = input_bytes(path, "summary-statistics file", DataError, MAX_SUMMARY_BYTES)
+    text = utf16_text(raw)
+    if text is None:
+        try:
+            text = raw.decode("utf-8-sig")
+        except UnicodeDecodeError:
+            raise DataError(f"summary-statistics file '{path}' is not UTF-8 text") from None
+    if "\x00" in text:
+        raise DataError(f"summary-statistics file '{path}' is not a text file (it contains NUL bytes)")
+    lines = text_lines(normalise_line_ends(text))
     fields: dict[str, tuple[str, int]] = {}
     rows: list[tuple[list[float], int]] = []
     in_values = False
@@ -88,10 +96,11 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
         dup = next(n for n in names if names.count(n) > 1)
         raise DataError(f"{path}:{fields['variables'][1]}: the variable '{dup}' is named twice")
     n_text, n_line = fields["observations"]
-    try:
-        n_obs = int(n_text)
-    except ValueError:
-        raise DataError(f"{path}:{n_line}: the number of observations must be a whole number, not '{n_text}'") from None
+    if not n_text.isdigit() or len(n_text) > 13:
+        shown = printable(n_text if len(n_text) <= 20 else n_text[:17] + "...")
+        raise DataError(f"{path}:{n_line}: the number of observations must be a whole number from 1 to "
+                        f"{MAX_OBSERVATIONS:,}, not '{shown}'")
+    n_obs = int(n_text)
     kind, kind_line = fields["matrix"]
     kind = kind.lower()
     if kind not in ("covariance", "correlation"):
@@ -101,16 +110,8 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
         raise DataError(f"{path}:{fields['divisor'][1]}: divisor must be 'n-1' or 'n', not '{divisor}'")
     p = len(names)
     matrix = _assemble(rows, p, str(path))
-    sds = None
-    if "sd" in fields:
-        sds = np.array(_numbers(fields["sd"][0], f"{path}:{fields['sd'][1]}"))
-        if len(sds) != p or np.any(sds <= 0):
-            raise DataError(f"{path}:{fields['sd'][1]}: give {p} positive standard deviations, one per variable")
-    means = np.zeros(p)
-    if "means" in fields:
-        means = np.array(_numbers(fields["means"][0], f"{path}:{fields['means'][1]}"))
-        if len(means) != p:
-            raise DataError(f"{path}:{fields['means'][1]}: give {p} means, one per variable")
+    sds = np.array(_numbers(fields["sd"][0], f"{path}:{fields['sd'][1]}")) if "sd" in fields else None
+    means = np.array(_numbers(fields["means"][0], f"{path}:{fields['means'][1]}")) if "means" in fields else None
     moments, notes = summary_moments(names, matrix, n_obs, kind, sds, means, divisor, str(path))
     return moments, notes
 
@@ -135,16 +136,43 @@ def _assemble(rows: list[tuple[list[float], int]], p: int, source: str) -> np.nd
     return out
 
 
+def _number_array(values, source: str, what: str) -> np.ndarray:
+    try:
+        array = np.asarray(values, dtype=float)
+    except (TypeError, ValueError, OverflowError):
+        raise DataError(f"{source}: {what} must hold numbers only") from None
+    return array
+
+
 def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str = "covariance",
                     sds: np.ndarray | None = None, means: np.ndarray | None = None, divisor: str = "n-1",
                     source: str = "<summary statistics>") -> tuple[SampleMoments, list[str]]:
     """Moments (divisor N) from a published matrix; notes say what was assumed."""
-    matrix = np.asarray(matrix, dtype=float)
     p = len(names)
-    if matrix.shape != (p, p):
-        raise DataError(f"{source}: the matrix is {matrix.shape[0]} x {matrix.shape[1]} but {p} variables are named")
+    matrix = _number_array(matrix, source, "the matrix")
+    if matrix.ndim != 2 or matrix.shape != (p, p):
+        shape = " x ".join(str(k) for k in matrix.shape) or "a single number"
+        raise DataError(f"{source}: the matrix is {shape} but {p} variables are named")
     if not np.all(np.isfinite(matrix)):
         raise DataError(f"{source}: the matrix holds a missing or infinite value")
+    if not np.allclose(matrix, matrix.T, rtol=1e-6, atol=1e-8 * max(1.0, float(np.abs(matrix).max()))):
+        i, j = np.argwhere(~np.isclose(matrix, matrix.T, rtol=1e-6, atol=1e-8 * max(1.0, float(np.abs(matrix).max()))))[0]
+        raise DataError(f"{source}: the matrix is not symmetric (row {i + 1}, column {j + 1} differs from row {j + 1}, "
+                        f"column {i + 1})")
+    if np.any(np.diag(matrix) <= 0):
+        j = int(np.flatnonzero(np.diag(matrix) <= 0)[0])
+        raise DataError(f"{source}: the variance of '{printable(names[j])}' on the diagonal is {matrix[j, j]:g}; "
+                        f"variances must be positive")
+    n_obs = check.observations(n_obs)
+    if sds is not None:
+        sds = _number_array(sds, source, "the standard deviations").ravel()
+        if len(sds) != p or not np.all(np.isfinite(sds)) or np.any(sds <= 0):
+            raise DataError(f"{source}: give {p} positive standard deviations, one per variable "
+                            f"({len(sds)} given{', not all positive' if len(sds) == p else ''})")
+    if means is not None:
+        means = _number_array(means, source, "the means").ravel()
+        if len(means) != p or not np.all(np.isfinite(means)):
+            raise DataError(f"{source}: give {p} finite means, one per variable ({len(means)} given)")
     if n_obs <= p:
         raise DataError(f"{source}: {n_obs} observations for {p} variables; the analysis needs more observations than variables")
     notes = []

@@ -44,7 +44,8 @@ def render_comparison(comparison, console: Console) -> None:
             tests.add_row(t.restricted, t.general, t.method, *_difference_cells(t))
         console.print(tests)
     for n in comparison.not_nested:
-        console.print(f"Not tested: {n.first} and {n.second}: {n.reason}. Compare them by AIC and BIC (lower is better).")
+        advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
+        console.print(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
     console.print(Text(GUIDE_NOTE, style="italic"))
 
 

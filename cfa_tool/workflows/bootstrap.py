@@ -19,6 +19,7 @@ from scipy import linalg
 
 from cfa_tool import distributions as dist
 
+from cfa_tool import options as check
 from cfa_tool.errors import OptionError
 from cfa_tool.fitting import moments_from_rows, replicate_fit
 from cfa_tool.results import FitResult, clean
@@ -70,6 +71,12 @@ def _jackknife(task):
     return fit.converged, fit.values, fit.standardized
 
 
+def bootstrap_options(replications: int, seed: int, workers: int | None) -> tuple[int, int]:
+    """The bootstrap's options checked (at least 10 resamples)."""
+    check.workers(workers)
+    return check.replications(replications, minimum=10), check.seed(seed)
+
+
 def bollen_stine_rows(rows: np.ndarray, sigma: np.ndarray) -> np.ndarray:
     """Rows transformed to have the model-implied covariance matrix exactly (Bollen & Stine 1992)."""
     mean = rows.mean(axis=0)
@@ -87,8 +94,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
         raise OptionError("the bootstrap works on single-group fits")
     if not result.converged:
         raise OptionError("the model did not converge, so there is nothing to bootstrap")
-    if replications < 10:
-        raise OptionError("the bootstrap needs at least 10 replications")
+    replications, seed = bootstrap_options(replications, seed, workers)
     moments_rows = rows
     names = result.observed
     start = result.theta

@@ -7,9 +7,10 @@ from pathlib import Path
 
 import pandas as pd
 
-from cfa_tool.api import load_spec, make_options, moments_for, ordinal_items_of, read_inputs_with_notes
+from cfa_tool.api import (load_spec, make_options, moments_for, ordinal_items_of, read_inputs_with_notes,
+                          refuse_row_options, summary_source)
 from cfa_tool.data.matching import check_columns
-from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file
+from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import OptionError
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.fitting import fit_moments, ordered_moments
@@ -24,6 +25,8 @@ class NotNested:
     first: str
     second: str
     reason: str
+    # AIC and BIC of the two can be compared: both maximum-likelihood fits of the same variables and rows
+    information_criteria: bool = True
 
 
 @dataclass(frozen=True, eq=False)
@@ -46,7 +49,8 @@ class Comparison:
                 for name, r in zip(self.names, self.results)
             ],
             "tests": [t.to_dict() for t in self.tests],
-            "not_nested": [dict(first=n.first, second=n.second, reason=n.reason) for n in self.not_nested],
+            "not_nested": [dict(first=n.first, second=n.second, reason=n.reason,
+                                information_criteria_comparable=n.information_criteria) for n in self.not_nested],
         }
 
 
@@ -65,7 +69,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     specs = [load_spec(m) for m in models]
     ordinal_items = set().union(*(ordinal_items_of(spec, ordinal) for spec in specs))
     names = _unique_names(specs)
-    if isinstance(data, (str, Path)) and Path(data).suffix.lower() == SUMMARY_SUFFIX:
+    if summary_source(data):
+        refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group)
         if ordinal_items:
             raise OptionError("ordinal items need the raw answers, not a summary-statistics file")
         return _compare_summary(specs, names, data, fit_options, group)
@@ -102,7 +107,7 @@ def _compare_ordinal(specs, names, complete, source, group, reference_group, fit
                                                data_groups[b], method)
         return ([test] if test is not None else []), reason
 
-    tests, not_nested = _each_pair(names, results, test_pair)
+    tests, not_nested = _each_pair(names, results, test_pair, specs, likelihood=False)
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped)
 
 
@@ -132,26 +137,54 @@ def _pairwise_tests(specs, names, results, data_groups) -> tuple[list[Difference
             tests.extend(scaled_difference_tests(results[a], results[b], names[a], names[b], c10))
         return tests, ""
 
-    return _each_pair(names, results, test_pair)
+    return _each_pair(names, results, test_pair, specs, likelihood=True)
 
 
-def _each_pair(names, results, test_pair) -> tuple[list[DifferenceTest], list[NotNested]]:
+def _each_pair(names, results, test_pair, specs, likelihood: bool) -> tuple[list[DifferenceTest], list[NotNested]]:
     """Every pair of models, the one with more degrees of freedom first (the candidate restricted model):
-    ``test_pair(a, b)`` gives its difference tests, or none and the reason they are not nested."""
+    ``test_pair(a, b)`` gives its difference tests, or none and the reason they are not nested.  Models
+    of different variables are not compared at all: their statistics describe different data.
+    ``likelihood``: the fits are maximum-likelihood fits, whose AIC and BIC exist."""
     tests: list[DifferenceTest] = []
     not_nested: list[NotNested] = []
     for i in range(len(results)):
         for j in range(i + 1, len(results)):
             a, b = (i, j) if _df(results[i]) >= _df(results[j]) else (j, i)
+            different = _different_variables(specs[a], specs[b], names[a], names[b])
+            if different:
+                not_nested.append(NotNested(names[a], names[b], different, information_criteria=False))
+                continue
             if not (results[a].converged and results[b].converged):
-                not_nested.append(NotNested(names[a], names[b], "a model did not converge"))
+                not_nested.append(NotNested(names[a], names[b], "a model did not converge", information_criteria=False))
                 continue
             found, reason = test_pair(a, b)
             if found:
                 tests.extend(found)
             else:
-                not_nested.append(NotNested(names[a], names[b], reason))
+                if not likelihood:
+                    reason += ("; AIC and BIC do not exist for least-squares fits of ordinal items, so no "
+                               "information criterion compares them either")
+                not_nested.append(NotNested(names[a], names[b], reason, information_criteria=likelihood))
     return tests, not_nested
+
+
+def _different_variables(first: Spec, second: Spec, first_name: str, second_name: str) -> str:
+    """Why two models cannot be compared at all ('' when they use the same variables)."""
+    a, b = set(first.observed_names), set(second.observed_names)
+    if a == b:
+        return ""
+
+    def listed(names: set[str]) -> str:
+        shown = sorted(names)[:5]
+        return ", ".join(shown) + (", ..." if len(names) > 5 else "")
+
+    parts = []
+    if a - b:
+        parts.append(f"{listed(a - b)} only in {first_name}")
+    if b - a:
+        parts.append(f"{listed(b - a)} only in {second_name}")
+    return (f"the models use different variables ({'; '.join(parts)}), so they describe different data: no test, fit "
+            f"index difference, AIC or BIC compares them")
 
 
 def scaling_at(m10, groups, df: int) -> float | None:

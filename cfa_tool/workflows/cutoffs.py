@@ -20,6 +20,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from cfa_tool import options as check
 from cfa_tool.errors import OptionError
 from cfa_tool.fitting import moments_from_rows, replicate_fit
 from cfa_tool.language.spec import Spec
@@ -102,12 +103,17 @@ def misspecified_covariance(spec: Spec, result: FitResult) -> tuple[np.ndarray, 
     return G @ mats.P @ G.T + T, what
 
 
+def cutoff_options(replications: int, seed: int, workers: int | None) -> tuple[int, int]:
+    """The options checked (at least 20 samples per population)."""
+    check.workers(workers)
+    return check.replications(replications, minimum=20), check.seed(seed)
+
+
 def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: int = 1, workers: int | None = None,
                 cluster: str | None = None, progress=None) -> CutoffResult:
     if result.multigroup or not result.converged or result.fit is None:
         raise OptionError("model-specific cutoffs need a converged single-group fit")
-    if replications < 20:
-        raise OptionError("cutoffs need at least 20 replications")
+    replications, seed = cutoff_options(replications, seed, workers)
     n = result.n_obs
     wrong, what = misspecified_covariance(spec, result)
     seeds = np.random.SeedSequence(seed).generate_state(2 * replications)

@@ -18,6 +18,7 @@ import pandas as pd
 
 from cfa_tool.api import check_ordinal_options, make_options, moments_for, ordinal_groups, ordinal_items_of, read_inputs
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
+from cfa_tool import options as check
 from cfa_tool.errors import OptionError
 from cfa_tool.fitting import assess, estimate
 from cfa_tool.language.spec import ParameterRef, Spec
@@ -119,8 +120,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     metric, scalar, strict, fitted by least squares on thresholds and polychoric correlations."""
     if partial not in PARTIAL_CHOICES:
         raise OptionError(f"partial must be one of {', '.join(PARTIAL_CHOICES)}, not '{partial}'")
-    if not 0 < alpha < 1:
-        raise OptionError("alpha must be between 0 and 1")
+    alpha = check.probability("alpha (the level of the difference tests)", alpha)
     fit_options = replace(make_options(options), diagnostics=False)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     if spec.invariant:

@@ -13,6 +13,7 @@ from dataclasses import dataclass
 import numpy as np
 from cfa_tool import distributions as dist
 
+from cfa_tool import options as check
 from cfa_tool.errors import OptionError
 from cfa_tool.fitting import moments_from_rows, replicate_fit
 from cfa_tool.language.spec import Spec
@@ -60,8 +61,14 @@ def _replicate(task) -> tuple[bool, np.ndarray, np.ndarray]:
 
 def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int = 1, alpha: float = 0.05,
                       workers: int | None = None, cluster: str | None = None, progress=None) -> MonteCarloPower:
-    if replications < 2:
-        raise OptionError("Monte Carlo power needs at least 2 replications")
+    replications = check.replications(replications, minimum=2)
+    seed = check.seed(seed)
+    alpha = check.probability("alpha (the significance level)", alpha)
+    p = len(spec.observed_names)
+    n_obs = check.observations(n_obs, "the sample size")
+    if n_obs <= p + 1:
+        raise OptionError(f"the sample size {n_obs} is too small for {p} variables: each simulated data set needs more "
+                          f"rows than variables (and a factor analysis far more)")
     population = population_from_spec(spec)
     table = population.table
     seeds = np.random.SeedSequence(seed).generate_state(replications)

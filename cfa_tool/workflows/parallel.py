@@ -8,6 +8,7 @@ import os
 from concurrent.futures import ProcessPoolExecutor
 from typing import Callable, Sequence
 
+from cfa_tool import options as check
 from cfa_tool.errors import OptionError
 
 
@@ -18,6 +19,7 @@ def default_workers() -> int:
 def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, cluster: str | None = None,
               progress: Callable[[int], None] | None = None, chunk: int = 25) -> list:
     """fn(task) for every task, results in task order.  ``progress(k)`` is called as tasks finish."""
+    workers = check.workers(workers)
     if cluster:
         return _run_on_cluster(fn, tasks, cluster, progress)
     workers = default_workers() if workers is None else workers

@@ -15,6 +15,7 @@ from dataclasses import asdict, dataclass
 
 from cfa_tool import distributions as dist
 
+from cfa_tool import options as check
 from cfa_tool.errors import OptionError
 
 TESTS = {  # name: (eps0, eps_a), the conventions of MacCallum, Browne & Sugawara (1996)
@@ -75,9 +76,14 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
          rmsea_null: float | None = None, rmsea_alt: float | None = None) -> PowerResult:
     if test not in TESTS:
         raise OptionError(f"test must be one of {', '.join(TESTS)}, not '{test}'")
+    df = check.whole_number("the degrees of freedom", df, 1, 10**7)
+    if n_obs is not None:
+        n_obs = check.observations(n_obs, "the sample size", minimum=2)
+    alpha = check.probability("alpha (the significance level)", alpha)
+    target_power = check.probability("the target power", target_power)
     eps0, epsa = TESTS[test]
-    eps0 = eps0 if rmsea_null is None else rmsea_null
-    epsa = epsa if rmsea_alt is None else rmsea_alt
+    eps0 = eps0 if rmsea_null is None else check.real_number("the RMSEA of the null hypothesis", rmsea_null, 0.0, 1.0, open_high=True)
+    epsa = epsa if rmsea_alt is None else check.real_number("the RMSEA of the alternative", rmsea_alt, 0.0, 1.0, open_high=True)
     power = rmsea_power(df, n_obs, eps0, epsa, alpha) if n_obs is not None else None
     return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required_sample_size(df, eps0, epsa, target_power, alpha),
                        target_power)

@@ -22,6 +22,7 @@ from cfa_tool.api import continuous_only, load_frame, load_spec, make_options
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, sample_moments
+from cfa_tool import options as check
 from cfa_tool.errors import DataError, EstimationError
 from cfa_tool.estimation.linalg import log_det_pd
 from cfa_tool.fitting import fit_moments
@@ -97,6 +98,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
 
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1, **options) -> tuple[Replication, Replication]:
     """Random halves A and B (seeded): calibrate on A and validate on B, then the reverse."""
+    seed = check.seed(seed)
     spec = continuous_only(load_spec(model), "replicate")
     frame, source = load_frame(data)
     check_columns(spec, [str(c) for c in frame.columns], source)

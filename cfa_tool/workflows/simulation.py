@@ -15,6 +15,7 @@ import numpy as np
 import pandas as pd
 from cfa_tool import distributions as dist
 
+from cfa_tool import options as check
 from cfa_tool.errors import OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
@@ -82,12 +83,15 @@ def to_ordinal(rows: np.ndarray, sigma: np.ndarray, categories: int) -> np.ndarr
 def simulate(spec: Spec, n: int, seed: int, categories: int | None = None, missing: float = 0.0) -> pd.DataFrame:
     """Data from the model's population values: continuous, or ordinal with ``categories``
     categories, with a share ``missing`` of answers removed completely at random."""
-    if n < 1:
-        raise OptionError("the number of rows to simulate must be at least 1")
-    if not 0 <= missing < 1:
-        raise OptionError("the share of missing answers must be at least 0 and below 1")
-    if categories is not None and categories < 2:
-        raise OptionError("ordinal items need at least 2 categories")
+    n = check.whole_number("the number of rows to simulate", n, 1)
+    seed = check.seed(seed)
+    missing = check.real_number("the share of missing answers", missing, 0.0, 1.0, open_high=True)
+    if categories is not None:
+        categories = check.whole_number("the number of categories", categories, 2, check.MAX_CATEGORIES)
+    p = len(spec.observed_names)
+    if n * p > check.MAX_SIMULATED_CELLS:
+        raise OptionError(f"{n:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values; "
+                          f"simulate fewer rows at a time")
     population = population_from_spec(spec)
     rng = np.random.default_rng(seed)
     rows = simulate_rows(population.sigma, n, rng)

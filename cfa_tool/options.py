@@ -1,0 +1,82 @@
+"""Checks of numeric options, shared by the Python API and the command line.
+
+Each function returns the value in its proper type or raises :class:`OptionError` with one
+sentence that names the option, the allowed range and the value given.  Library entry
+points call them, so a value is checked once, wherever it comes from.
+"""
+
+from __future__ import annotations
+
+import math
+import numbers
+
+from cfa_tool.errors import OptionError, printable
+
+#: Upper limits that keep a run within reach of one computer; far above real use.
+MAX_REPLICATIONS = 1_000_000
+MAX_WORKERS = 1_024
+MAX_SEED = 2**63 - 1
+MAX_OBSERVATIONS = 10**12
+MAX_ITERATIONS = 1_000_000
+MAX_SIMULATED_CELLS = 100_000_000  # rows x variables of simulated data held in memory
+MAX_CATEGORIES = 100
+
+
+def _shown(value: object) -> str:
+    text = printable(repr(value) if isinstance(value, str) else value)
+    return text if len(text) <= 40 else text[:37] + "..."
+
+
+def whole_number(name: str, value: object, minimum: int, maximum: int | None = None) -> int:
+    """An integer (or a float with no fractional part) within [minimum, maximum]."""
+    if isinstance(value, bool) or not isinstance(value, numbers.Real):
+        raise OptionError(f"{name} must be a whole number, not {_shown(value)}")
+    if isinstance(value, numbers.Integral):
+        number = int(value)
+    else:
+        as_float = float(value)
+        if not math.isfinite(as_float) or as_float != int(as_float):
+            raise OptionError(f"{name} must be a whole number, not {_shown(value)}")
+        number = int(as_float)
+    if number < minimum:
+        raise OptionError(f"{name} must be at least {minimum:,}, not {_shown(value)}")
+    if maximum is not None and number > maximum:
+        raise OptionError(f"{name} must be at most {maximum:,}, not {_shown(value)}")
+    return number
+
+
+def real_number(name: str, value: object, minimum: float | None = None, maximum: float | None = None,
+                open_low: bool = False, open_high: bool = False) -> float:
+    """A finite number within the given bounds (open or closed)."""
+    if isinstance(value, bool) or not isinstance(value, numbers.Real):
+        raise OptionError(f"{name} must be a number, not {_shown(value)}")
+    number = float(value)
+    if not math.isfinite(number):
+        raise OptionError(f"{name} must be a finite number, not {_shown(value)}")
+    if minimum is not None and (number < minimum or (open_low and number == minimum)):
+        raise OptionError(f"{name} must be {'above' if open_low else 'at least'} {minimum:g}, not {_shown(value)}")
+    if maximum is not None and (number > maximum or (open_high and number == maximum)):
+        raise OptionError(f"{name} must be {'below' if open_high else 'at most'} {maximum:g}, not {_shown(value)}")
+    return number
+
+
+def probability(name: str, value: object) -> float:
+    """A level or a power: strictly between 0 and 1."""
+    return real_number(name, value, 0.0, 1.0, open_low=True, open_high=True)
+
+
+def seed(value: object) -> int:
+    return whole_number("the seed", value, 0, MAX_SEED)
+
+
+def replications(value: object, minimum: int = 1) -> int:
+    return whole_number("the number of replications", value, minimum, MAX_REPLICATIONS)
+
+
+def workers(value: object) -> int | None:
+    """Local worker processes; None means one per core."""
+    return None if value is None else whole_number("the number of workers", value, 1, MAX_WORKERS)
+
+
+def observations(value: object, name: str = "the number of observations", minimum: int = 1) -> int:
+    return whole_number(name, value, minimum, MAX_OBSERVATIONS)
