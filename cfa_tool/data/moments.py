@@ -96,30 +96,67 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
 MISSING_CHOICES = ("listwise", "full-information")
 
 
+#: Numbers beyond these magnitudes cannot be analysed in double precision (their squares and
+#: products overflow or lose all precision); a column of them is to be rescaled first.
+LARGEST_VALUE = 1e100
+SMALLEST_SPREAD = 1e-100
+LARGEST_SPREAD_RATIO = 1e15  # between the largest and smallest standard deviation of the model's columns
+
+
 def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
     values = numeric_columns(frame, names, source)
-    if np.isfinite(values).all():  # the usual case: nothing infinite, nothing missing
-        return values
-    infinite = np.isinf(values)
-    if infinite.any():
-        row, col = np.argwhere(infinite)[0]
-        raise DataError(f"{source}: column '{names[col]}' has an infinite value in data row {row + 1}")
+    if not np.isfinite(values).all():
+        infinite = np.isinf(values)
+        if infinite.any():
+            row, col = np.argwhere(infinite)[0]
+            raise DataError(f"{source}: column '{printable(names[col])}' has an infinite value in data row {row + 1}")
+        empty = np.flatnonzero(np.isnan(values).all(axis=0))
+        if len(empty):
+            listed = ", ".join(f"'{printable(names[j])}'" for j in empty[:5])
+            raise DataError(f"{source}: column{'s' if len(empty) > 1 else ''} {listed} "
+                            f"{'have' if len(empty) > 1 else 'has'} no answers at all (every cell is empty); "
+                            f"check the data file, or take the item out of the model")
+    with np.errstate(invalid="ignore"):
+        largest = np.nanmax(np.abs(values), axis=0) if len(values) else np.zeros(values.shape[1])
+    if (largest > LARGEST_VALUE).any():
+        col = int(np.flatnonzero(largest > LARGEST_VALUE)[0])
+        row = int(np.nanargmax(np.abs(values[:, col])))
+        raise DataError(f"{source}: column '{printable(names[col])}' holds {values[row, col]:.3g} (data row {row + 1}), too "
+                        f"large to compute with; if the value is right, divide the column by a power of ten (the fit does "
+                        f"not change), otherwise correct it")
     return values
 
 
 def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], source: str) -> None:
     """Constant columns and exactly collinear columns are errors that name the columns."""
     sds = np.sqrt(np.clip(np.diag(cov), 0.0, None))
-    constant = np.flatnonzero(sds <= 1e-12 * np.maximum(1.0, np.abs(means)))
+    constant = np.flatnonzero((sds == 0) | (sds <= 1e-13 * np.abs(means)))
     if len(constant):
         j = constant[0]
-        raise DataError(f"{source}: column '{names[j]}' has the same value ({means[j]:g}) in every row used, so it carries no information")
+        raise DataError(f"{source}: column '{printable(names[j])}' has the same value ({means[j]:g}) in every row used, so "
+                        f"it carries no information")
+    tiny = np.flatnonzero(sds < SMALLEST_SPREAD)
+    if len(tiny):
+        j = tiny[0]
+        raise DataError(f"{source}: the values of column '{printable(names[j])}' differ by no more than about {sds[j]:.1g}, "
+                        f"too little to compute with; multiply the column by a power of ten (the fit does not change)")
+    if sds.max() > LARGEST_SPREAD_RATIO * sds.min():
+        hi, lo = int(np.argmax(sds)), int(np.argmin(sds))
+        raise DataError(f"{source}: the standard deviations of the columns differ by a factor of {sds[hi] / sds[lo]:.1g} "
+                        f"('{printable(names[hi])}' {sds[hi]:.3g}, '{printable(names[lo])}' {sds[lo]:.3g}), too much to "
+                        f"compute with accurately; put the items on comparable scales by multiplying or dividing columns "
+                        f"by powers of ten (the fit does not change)")
     corr = cov / np.outer(sds, sds)
     # a column that is an exact combination of earlier ones has (next to) no variance left given them
     found = cholesky_log_det(corr)
     if found is not None and found[0].diagonal().min() ** 2 > 1e-8:
         return
     vals, vecs = np.linalg.eigh(corr)
+    if vals[0] < -1e-8:
+        raise DataError(
+            f"{source}: the matrix is not positive semi-definite (smallest eigenvalue of the correlations {vals[0]:.3g}), so "
+            f"it cannot be the covariance matrix of one set of complete rows; check the values for typing errors (a matrix "
+            f"computed from pairwise-complete rows can have this problem too)")
     if vals[0] < 1e-10:
         weights = np.abs(vecs[:, 0])
         involved = [names[j] for j in np.argsort(-weights) if weights[j] > 0.1]
