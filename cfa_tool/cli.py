@@ -7,11 +7,13 @@ not be estimated (no convergence, not identified), 1 an internal error.
 from __future__ import annotations
 
 import argparse
+import contextlib
 import os
 import sys
+import warnings
 from pathlib import Path
 
-from cfa_tool.errors import CfaError, EstimationError, ModelError, OptionError
+from cfa_tool.errors import CfaError, EstimationError, ModelError, OptionError, printable
 
 PROG = "cfa-tool"
 
@@ -194,7 +196,10 @@ def main(argv: list[str] | None = None) -> int:
         parser.print_help()
         return 2
     try:
-        return _run(args)
+        with warnings.catch_warnings(), np_quiet():
+            # the report says what went wrong in its own words; library warnings would only print before it
+            warnings.simplefilter("ignore")
+            return _run(args)
     except CfaError as exc:
         _report_error(exc)
         return exc.exit_code
@@ -204,18 +209,33 @@ def main(argv: list[str] | None = None) -> int:
     except Exception as exc:  # a bug in the tool, not the user's fault
         if os.environ.get("CFA_TOOL_DEBUG"):
             raise
-        print(f"{PROG}: internal error: {type(exc).__name__}: {exc} (please report this; set CFA_TOOL_DEBUG=1 for details)", file=sys.stderr)
+        print(f"{PROG}: internal error: {type(exc).__name__}: {printable(str(exc)[:300])} (please report this; set "
+              f"CFA_TOOL_DEBUG=1 for details)", file=sys.stderr)
         return 1
 
 
+def np_quiet():
+    """numpy's floating-point warnings off for the run (numpy is imported only when needed)."""
+    if "numpy" not in sys.modules:
+        try:
+            import numpy
+        except ImportError:  # pragma: no cover - a declared dependency
+            return contextlib.nullcontext()
+    import numpy
+
+    return numpy.errstate(all="ignore")
+
+
 def _report_error(exc: CfaError) -> None:
+    """One line (control characters from names and values shown escaped, so nothing in a user's
+    file can split the line or reach the terminal), plus the model line with a caret."""
     if isinstance(exc, ModelError):
-        print(f"{PROG}: {exc.one_line()}", file=sys.stderr)
+        print(f"{PROG}: {printable(exc.one_line())}", file=sys.stderr)
         excerpt = exc.excerpt()
         if excerpt:
             print(excerpt, file=sys.stderr)
     else:
-        print(f"{PROG}: {exc}", file=sys.stderr)
+        print(f"{PROG}: {printable(exc)}", file=sys.stderr)
 
 
 def _run(args: argparse.Namespace) -> int:
@@ -481,9 +501,9 @@ def _emit(args: argparse.Namespace, result, render) -> int:
 
 
 def _console():
-    from rich.console import Console
+    from cfa_tool.reporting.terminal import SafeConsole
 
-    console = Console(highlight=False, markup=False, emoji=False)
+    console = SafeConsole(highlight=False, markup=False, emoji=False)
     console.width = max(console.width, 120)  # tables stay readable when piped or in a narrow window
     return console
 

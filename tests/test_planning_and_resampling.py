@@ -102,6 +102,50 @@ def test_bootstrap_is_reproducible_and_covers_the_estimate(hs_data):
     assert first.bollen_stine_p < 0.05
 
 
+def test_bca_acceleration_from_influence_values_matches_the_jackknife(hs_data):
+    """The BCa acceleration from each row's analytic influence equals, to first order, the
+    jackknife's (Efron & Tibshirani 1993, ch. 14: a = sum d^3 / (6 (sum d^2)^(3/2)), d the
+    differences of the leave-one-out estimates from their mean), computed here by brute force."""
+    from cfa_tool.fitting import moments_from_rows, replicate_fit
+    from cfa_tool.workflows.bootstrap import acceleration, influence_values
+
+    spec = parse_model(THREE_FACTORS)
+    rows = hs_data[[f"x{i}" for i in range(1, 10)]].to_numpy(dtype=float)
+    names = tuple(f"x{i}" for i in range(1, 10))
+    full = replicate_fit(spec, moments_from_rows(rows, names))
+    influence, influence_std = influence_values(spec, rows, names, full.theta)
+    assert influence.shape == (301, len(full.values))
+    jack = np.array([replicate_fit(spec, moments_from_rows(np.delete(rows, i, axis=0), names), start=full.theta).values
+                     for i in range(len(rows))])
+    jack_std = np.array([replicate_fit(spec, moments_from_rows(np.delete(rows, i, axis=0), names),
+                                       start=full.theta).standardized for i in range(len(rows))])
+    varying = np.ptp(jack, axis=0) > 0
+    d = jack.mean(axis=0) - jack
+    exact = np.sum(d[:, varying] ** 3, axis=0) / (6 * np.sum(d[:, varying] ** 2, axis=0) ** 1.5)
+    np.testing.assert_allclose(acceleration(influence)[varying], exact, atol=2e-3)
+    # each row's influence is (n - 1) times its jackknife difference, to first order
+    for e in np.flatnonzero(varying):
+        assert np.corrcoef(influence[:, e], d[:, e])[0, 1] > 0.99
+        assert np.std(influence[:, e]) / 300 == pytest.approx(np.std(d[:, e]), rel=0.03)
+    varying_std = np.ptp(jack_std, axis=0) > 1e-12
+    d_std = jack_std.mean(axis=0) - jack_std
+    exact_std = np.sum(d_std[:, varying_std] ** 3, axis=0) / (6 * np.sum(d_std[:, varying_std] ** 2, axis=0) ** 1.5)
+    np.testing.assert_allclose(acceleration(influence_std)[varying_std], exact_std, atol=2e-3)
+
+
+def test_bootstrap_cost_does_not_grow_with_rows_times_fits(monkeypatch, hs_data):
+    """BCa needs no refit per row: a 100,000-row bootstrap fits the model once per resample only."""
+    import cfa_tool.workflows.bootstrap as B
+    from cfa_tool.api import bootstrap
+
+    calls = []
+    original = B.replicate_fit
+    monkeypatch.setattr(B, "replicate_fit", lambda *a, **k: calls.append(1) or original(*a, **k))
+    big = hs_data.sample(n=20_000, replace=True, random_state=1).reset_index(drop=True)
+    bootstrap(THREE_FACTORS, big, replications=10, seed=1, workers=1, bollen_stine=False)
+    assert len(calls) == 10
+
+
 def test_bollen_stine_p_is_roughly_uniform_under_a_true_model():
     from cfa_tool.api import bootstrap
 

@@ -63,7 +63,10 @@ def methods_paragraph(result) -> str:
         f"and {n_items} indicators was estimated{groups} by {estimator} ({sample})."
     )
     low, high = f.rmsea_ci90
-    if result.robust is not None:
+    if f.df == 0:
+        parts.append("The model is just-identified (0 degrees of freedom): it reproduces the observed covariances "
+                     "exactly, so its fit could not be tested.")
+    elif result.robust is not None:
         r = result.robust
         rl, rh = r.rmsea_robust_ci90
         parts.append(
@@ -81,6 +84,7 @@ def methods_paragraph(result) -> str:
     corr = [r.standardized for r in result.estimates if r.kind == "factor_covariance"]
     if corr and not result.multigroup:
         parts.append(f"Factor correlations ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}.")
-    parts.append("Fit was judged against conventional guide values (e.g., CFI >= .95, RMSEA <= .06, SRMR <= .08; "
-                 "Hu & Bentler, 1999), which are conventions rather than strict criteria.")
+    if f.df > 0:
+        parts.append("Fit was judged against conventional guide values (e.g., CFI >= .95, RMSEA <= .06, SRMR <= .08; "
+                     "Hu & Bentler, 1999), which are conventions rather than strict criteria.")
     return " ".join(parts)

@@ -62,6 +62,9 @@ def fit_table(result) -> ReportTable:
     ]
     if missing(f.rmsea_p_close):
         rows = [r for r in rows if not r[0].startswith("  test of close fit")]
+    if f.df == 0:  # nothing to test: CFI, TLI and RMSEA are not defined
+        rows = [["Chi-square test", "0 df: no test", "the model is just-identified: it reproduces the data exactly, "
+                                                     "so its fit cannot be tested"], rows[-1]]
     r = result.robust
     if r is not None:
         rlow, rhigh = r.rmsea_robust_ci90

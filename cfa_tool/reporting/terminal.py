@@ -9,10 +9,25 @@ from rich.console import Console
 from rich.table import Table
 from rich.text import Text
 
+from cfa_tool.errors import printable
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
 
-__all__ = ["GUIDE_NOTE", "HIGH_STAKES_NOTE", "render", "render_text", "rich_table"]
+__all__ = ["GUIDE_NOTE", "HIGH_STAKES_NOTE", "SafeConsole", "render", "render_text", "rich_table"]
+
+
+class SafeConsole(Console):
+    """A console that shows control characters in text escaped (``\\x1b``), so that column names,
+    group labels, titles and data values from a user's files cannot clear the screen, set the
+    window title or move the cursor.  Every string (table cells, titles, notes) passes here."""
+
+    def render_str(self, text: str, **options):  # type: ignore[override]
+        return super().render_str(printable(text, keep_newlines=True), **options)
+
+    def print(self, *objects, **options) -> None:  # type: ignore[override]
+        safe = [Text(printable(o.plain, keep_newlines=True), style=o.style) if isinstance(o, Text) and not o.spans else o
+                for o in objects]
+        super().print(*safe, **options)
 
 
 def _table(title: str, columns: list[tuple[str, str]]) -> Table:
@@ -75,6 +90,6 @@ def render(result, console: Console) -> None:
 
 def render_text(result, width: int = 120) -> str:
     buffer = io.StringIO()
-    console = Console(file=buffer, width=width, no_color=True, highlight=False, emoji=False, markup=False)
+    console = SafeConsole(file=buffer, width=width, no_color=True, highlight=False, emoji=False, markup=False)
     render(result, console)
     return buffer.getvalue()

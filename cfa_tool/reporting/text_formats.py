@@ -29,6 +29,22 @@ def all_tables(result) -> list[ReportTable]:
     return out
 
 
+_FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
+
+
+def csv_cell(value) -> str:
+    """A cell for a CSV table: text that a spreadsheet would run as a formula (it starts with =, +, -,
+    @, a tab or a carriage return) gets a leading single quote, the common guard; numbers stay
+    numbers (-0.52 is a number, not a formula)."""
+    text = str(value)
+    if text.startswith(_FORMULA_START):
+        try:
+            float(text)
+        except ValueError:
+            return "'" + text
+    return text
+
+
 def markdown_table(table: ReportTable) -> str:
     def cell(text: str) -> str:
         return markdown_text(text) if text else ""
@@ -60,8 +76,8 @@ def markdown_report(result) -> str:
 def csv_table(table: ReportTable) -> str:
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow(table.columns)
-    writer.writerows(table.rows)
+    writer.writerow([csv_cell(c) for c in table.columns])
+    writer.writerows([csv_cell(v) for v in row] for row in table.rows)
     return buffer.getvalue()
 
 

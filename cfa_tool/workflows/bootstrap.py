@@ -2,7 +2,9 @@
 
 Rows are resampled with replacement and the model refitted, starting from the
 original estimates.  Intervals: percentile, and bias-corrected and
-accelerated (BCa; Efron 1987) with the acceleration from the jackknife.  The
+accelerated (BCa; Efron 1987) with the acceleration from each row's empirical
+influence on the estimates (the analytic form of the jackknife, so its cost
+does not grow with N times the cost of a fit; see :func:`influence_values`).  The
 Bollen-Stine (1992) p-value of the chi-square test resamples rows transformed
 so that the model holds exactly, Y = (X - m) S^-1/2 Sigma^1/2 + m, and counts
 the bootstrap chi-squares at least as large as the observed one.
@@ -20,7 +22,7 @@ from scipy import linalg
 from cfa_tool import distributions as dist
 
 from cfa_tool import options as check
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import EstimationError, OptionError
 from cfa_tool.fitting import moments_from_rows, replicate_fit
 from cfa_tool.results import FitResult, clean
 from cfa_tool.workflows.parallel import run_tasks
@@ -65,10 +67,61 @@ def _replicate(task):
     return fit.converged, fit.values, fit.standardized, fit.chi_square
 
 
-def _jackknife(task):
-    spec, rows, names, index, start = task
-    fit = replicate_fit(spec, moments_from_rows(np.delete(rows, index, axis=0), names), start=start, fit_indices_wanted=False)
-    return fit.converged, fit.values, fit.standardized
+def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Each row's empirical influence on every table entry, unstandardized and fully standardized
+    ((N, E) arrays).
+
+    The ML estimate solves g(theta, s) = -2 D'W (s - sigma) = 0, the gradient of the discrepancy
+    (Browne 1974), with D the derivatives of vech(Sigma), W = 1/2 D_p'(Sigma^-1 (x) Sigma^-1) D_p and
+    s = vech(S).  g is linear in s, so by the implicit function theorem a change ds moves the
+    estimate by H^-1 2 D'W ds, H the observed Hessian of the discrepancy (which, unlike the
+    expected information, stays right when the model misfits).  Row i's influence puts
+    vech(d_i d_i') - vech(S) for ds, d_i its deviation from the means (Hampel et al. 1986).
+    Entries are affine in theta; standardized values follow by the chain rule, their
+    derivatives taken by central differences of the closed-form standardization."""
+    from cfa_tool.assessment.standardized import standardize_entries
+    from cfa_tool.estimation.linalg import scaled_inverse
+    from cfa_tool.fitting import FitOptions, estimate
+    from cfa_tool.inference.robust import normal_weight, vech_indices
+
+    est = estimate(spec, [(None, moments_from_rows(rows, names))], FitOptions(diagnostics=False), start=theta)
+    model, table, theta = est.model, est.table, est.theta
+    sigma = model.implied(theta)
+    I, J = vech_indices(len(sigma))
+    d_sigma, _ = model.jacobian(theta, 0)
+    delta = d_sigma[:, I, J].T  # (p*, q)
+    W = normal_weight(np.linalg.inv(sigma))
+    WD = W @ delta
+    dev = rows - rows.mean(axis=0)
+    U = dev[:, I] * dev[:, J]
+    U -= U.mean(axis=0)
+    hessian = est.likelihood.observed_hessian(theta)
+    if hessian is None:
+        hessian = 2.0 * (delta.T @ WD)
+    influence_theta = 2.0 * U @ WD @ scaled_inverse(hessian)  # (N, q); the Hessian is symmetric
+    codes, erows, ecols = table.entry_arrays()
+
+    def standardized(t: np.ndarray) -> np.ndarray:
+        return standardize_entries(model.matrices(t), codes, erows, ecols, model.entry_values(t))[0]
+
+    step = 1e-6 * np.maximum(1.0, np.abs(theta))
+    d_std = np.empty((len(codes), len(theta)))
+    for k in range(len(theta)):
+        up, down = theta.copy(), theta.copy()
+        up[k] += step[k]
+        down[k] -= step[k]
+        d_std[:, k] = (standardized(up) - standardized(down)) / (2 * step[k])
+    return influence_theta @ model.J.T, influence_theta @ d_std.T
+
+
+def acceleration(influence: np.ndarray) -> np.ndarray:
+    """BCa acceleration of each column of influence values: sum U^3 / (6 (sum U^2)^(3/2))
+    (Efron 1987; Efron & Tibshirani 1993, ch. 14, with the jackknife's differences replaced by
+    the empirical influence, which they approximate)."""
+    U = influence - influence.mean(axis=0)
+    denominator = 6.0 * np.sum(U**2, axis=0) ** 1.5
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(denominator > 0, np.sum(U**3, axis=0) / np.where(denominator > 0, denominator, 1.0), 0.0)
 
 
 def bootstrap_options(replications: int, seed: int, workers: int | None) -> tuple[int, int]:
@@ -102,28 +155,29 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     tasks = [(spec, moments_rows, names, int(s), start) for s in seeds[:replications]]
     draws = run_tasks(_replicate, tasks, workers, cluster, progress)
     ok = [d for d in draws if d[0]]
+    if len(ok) < 2:
+        raise EstimationError(f"{len(ok)} of {replications} bootstrap resamples could be fitted, too few for intervals; "
+                              f"the model is too fragile for these data (check for Heywood cases, or use more rows)")
     values = np.array([d[1] for d in ok])
     standardized = np.array([d[2] for d in ok])
-    jack_values = jack_std = None
-    if bca and ok:
-        jtasks = [(spec, moments_rows, names, i, start) for i in range(len(moments_rows))]
-        jack = [j for j in run_tasks(_jackknife, jtasks, workers, cluster) if j[0]]
-        jack_values = np.array([j[1] for j in jack])
-        jack_std = np.array([j[2] for j in jack])
+    accel_values = accel_std = None
+    if bca:
+        influence, influence_std = influence_values(spec, moments_rows, names, start)
+        accel_values, accel_std = acceleration(influence), acceleration(influence_std)
     intervals = []
     for e, row in enumerate(result.estimates):
         if not row.free and row.kind != "loading":
             continue
-        for scale, draws_e, point, jack_e in (
-            ("unstandardized", values[:, e] if ok else None, row.estimate, None if jack_values is None else jack_values[:, e]),
-            ("standardized", standardized[:, e] if ok else None, row.standardized, None if jack_std is None else jack_std[:, e]),
+        for scale, draws_e, point, accel in (
+            ("unstandardized", values[:, e], row.estimate, None if accel_values is None else accel_values[e]),
+            ("standardized", standardized[:, e], row.standardized, None if accel_std is None else accel_std[e]),
         ):
             if scale == "unstandardized" and not row.free:
                 continue
-            if draws_e is None or np.ptp(draws_e) == 0:
+            if not np.isfinite(draws_e).all() or np.ptp(draws_e) == 0:
                 continue
             intervals.append(BootInterval(row.kind, row.variables, scale, point, _percentile(draws_e),
-                                          _bca(draws_e, point, jack_e) if jack_e is not None else (np.nan, np.nan),
+                                          _bca(draws_e, point, accel) if accel is not None else (np.nan, np.nan),
                                           float(np.std(draws_e, ddof=1))))
     p_bs = converged_bs = None
     if bollen_stine:
@@ -141,15 +195,12 @@ def _percentile(draws: np.ndarray) -> tuple[float, float]:
     return float(low), float(high)
 
 
-def _bca(draws: np.ndarray, point: float, jack: np.ndarray, level: float = 0.95) -> tuple[float, float]:
-    """Efron (1987): z0 from the share of draws below the estimate, acceleration from the jackknife."""
+def _bca(draws: np.ndarray, point: float, a: float, level: float = 0.95) -> tuple[float, float]:
+    """Efron (1987): z0 from the share of draws below the estimate, ``a`` the acceleration."""
     share = np.mean(draws < point) + 0.5 * np.mean(draws == point)
-    if share <= 0 or share >= 1:
+    if share <= 0 or share >= 1 or not np.isfinite(a):
         return (float("nan"), float("nan"))
     z0 = dist.norm_ppf(share)
-    d = jack.mean() - jack
-    denom = 6.0 * (np.sum(d**2) ** 1.5)
-    a = float(np.sum(d**3) / denom) if denom > 0 else 0.0
     out = []
     for q in ((1 - level) / 2, (1 + level) / 2):
         z = dist.norm_ppf(q)
