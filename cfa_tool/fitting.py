@@ -25,7 +25,7 @@ from cfa_tool.data.moments import SampleMoments
 from cfa_tool.errors import OptionError
 from cfa_tool.data.moments import MISSING_CHOICES
 from cfa_tool.estimation.fiml import MissingDataLikelihood, fiml_baseline, fiml_log_likelihood
-from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood
+from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
 from cfa_tool.estimation.patterns import pattern_data
 from cfa_tool.estimation.optimizer import minimise
 from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
@@ -384,10 +384,16 @@ def replicate_fit(spec: Spec, moments: SampleMoments, start: np.ndarray | None =
 
 
 def _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_wanted) -> ReplicateFit:
-    est = estimate(spec, [(None, moments)], options, start=start)
+    nan = float("nan")
+    try:
+        est = estimate(spec, [(None, moments)], options, start=start)
+    except SingularMoments:  # a resample with too few distinct rows: counted as not converged
+        table, model = model_structure(spec, None, False)
+        theta = np.full(table.n_free, nan) if start is None else np.asarray(start, dtype=float)
+        values = model.entry_values(theta)
+        return ReplicateFit(False, theta, values, np.full_like(values, np.nan), None, nan, nan, nan, nan)
     table, model = est.table, est.model
     values = model.entry_values(est.theta)
-    nan = float("nan")
     if not est.converged:
         return ReplicateFit(False, est.theta, values, np.full_like(values, np.nan), None, nan, nan, nan, nan)
     mats = model.matrices(est.theta)

@@ -122,3 +122,151 @@ def test_workflows_for_continuous_items_refuse_ordinal_declarations(command, cor
     argv = command + (["--data", "data/good.csv"] if command[0] != "replicate" else [])
     code, _, err = _run(argv, capsys)
     _check(code, err, 2, ["ordinal_in_compare.cfa:3:9:", f"'{command[0]}' treats every item as continuous"], before, corpus)
+
+
+# ---------------------------------------------------------------- cases that need a file made at run time
+
+
+def test_json_to_a_symbolic_link_replaces_the_target_and_keeps_the_link(corpus, capsys):
+    (corpus / "target.json").write_text("old")
+    (corpus / "link.json").symlink_to("target.json")
+    code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "link.json"], capsys)
+    assert code == 0, err
+    assert (corpus / "link.json").is_symlink()
+    assert __import__("json").loads((corpus / "target.json").read_text())["converged"] is True
+
+
+def test_json_to_a_symbolic_link_to_the_data_is_refused(corpus, capsys):
+    (corpus / "link.csv").symlink_to("data/good.csv")
+    before = _snapshot(corpus)
+    code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "link.csv"], capsys)
+    _check(code, err, 2, ["--json: refusing to write to 'link.csv': it is the input file 'data/good.csv'"], before, corpus)
+
+
+def test_json_to_a_hard_link_of_the_model_is_refused(corpus, capsys):
+    import os
+
+    os.link(corpus / "models" / "good.cfa", corpus / "same.cfa")
+    before = _snapshot(corpus)
+    code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "same.cfa"], capsys)
+    _check(code, err, 2, ["refusing to write to 'same.cfa'"], before, corpus)
+
+
+def test_named_pipe_and_character_device_are_written_in_place(corpus, capsys):
+    import os
+    import threading
+
+    fifo = corpus / "pipe"
+    os.mkfifo(fifo)
+    received = []
+    reader = threading.Thread(target=lambda: received.append(fifo.read_text()))
+    reader.start()
+    code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "pipe"], capsys)
+    reader.join(timeout=30)
+    assert code == 0, err
+    assert '"converged": true' in received[0]
+    assert fifo.is_fifo()  # never renamed over
+    code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "/dev/null"], capsys)
+    assert code == 0, err
+    assert Path("/dev/null").is_char_device()
+
+
+def test_json_to_standard_output_still_writes_the_other_reports(corpus, capsys):
+    code, out, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "-", "--html", "r.html"], capsys)
+    assert code == 0, err
+    assert __import__("json").loads(out)["converged"] is True  # standard output holds the JSON alone
+    assert (corpus / "r.html").read_text().startswith("<!DOCTYPE html>")
+    assert "HTML report written to r.html" in err
+
+
+def test_output_into_a_read_only_folder(corpus, capsys):
+    import os
+
+    if os.geteuid() == 0:
+        pytest.skip("the superuser may write into read-only folders")
+    locked = corpus / "locked"
+    locked.mkdir()
+    locked.chmod(0o500)
+    before = _snapshot(corpus)
+    try:
+        code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "locked/r.json"], capsys)
+    finally:
+        locked.chmod(0o700)
+    _check(code, err, 2, ["--json: cannot write 'locked/r.json'", "is not writable"], before, corpus)
+
+
+def test_outputs_follow_the_umask(corpus, capsys):
+    import os
+
+    old = os.umask(0o027)
+    try:
+        code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "r.json", "--tables", "t"], capsys)
+    finally:
+        os.umask(old)
+    assert code == 0, err
+    assert (corpus / "r.json").stat().st_mode & 0o777 == 0o640
+    assert (corpus / "t" / "fit.csv").stat().st_mode & 0o777 == 0o640
+
+
+def test_table_folder_is_written_again_but_a_changed_table_is_kept(corpus, capsys):
+    argv = ["fit", "models/good.cfa", "--data", "data/good.csv", "--tables", "t"]
+    assert _run(argv, capsys)[0] == 0
+    assert _run(argv, capsys)[0] == 0  # the tool's own unchanged tables may be replaced
+    edited = corpus / "t" / "fit.csv"
+    edited.write_text(edited.read_text() + "my note\n")
+    before = _snapshot(corpus)
+    code, _, err = _run(argv, capsys)
+    _check(code, err, 2, ["'t/fit.csv' exists and was not written by cfa-tool (or was changed since)"], before, corpus)
+
+
+def test_summary_statistics_linked_to_an_endless_device(corpus, capsys):
+    (corpus / "data" / "zero.stats").symlink_to("/dev/zero")
+    (corpus / "data" / "zero.csv").symlink_to("/dev/zero")
+    (corpus / "models" / "zero.cfa").symlink_to("/dev/zero")
+    before = _snapshot(corpus)
+    code, _, err = _run(["fit", "models/good.cfa", "--data", "data/zero.stats"], capsys)
+    _check(code, err, 2, ["summary-statistics file 'data/zero.stats' holds more than"], before, corpus)
+    code, _, err = _run(["fit", "models/good.cfa", "--data", "data/zero.csv"], capsys)
+    _check(code, err, 2, ["data file 'data/zero.csv' holds more than"], before, corpus)
+    code, _, err = _run(["fit", "models/zero.cfa", "--data", "data/good.csv"], capsys)
+    _check(code, err, 2, ["model file 'models/zero.cfa' holds more than"], before, corpus)
+
+
+def test_model_path_longer_than_the_system_allows(corpus, capsys):
+    before = _snapshot(corpus)
+    code, _, err = _run(["fit", "m" * 300 + ".cfa", "--data", "data/good.csv"], capsys)
+    _check(code, err, 2, ["the name is too long for the file system"], before, corpus)
+    code, _, err = _run(["fit", "models/good.cfa", "--data", "d" * 300 + ".csv"], capsys)
+    _check(code, err, 2, ["the name is too long for the file system"], before, corpus)
+
+
+def test_a_chain_of_higher_order_factors(corpus, capsys):
+    lines = ["factor f0: q1, q2, q3"] + [f"factor f{i}: f{i - 1}, q{4 + i % 3}" for i in range(1, 1500)]
+    (corpus / "models" / "chain.cfa").write_text("\n".join(lines) + "\n")
+    before = _snapshot(corpus)
+    code, _, err = _run(["check", "models/chain.cfa", "--data", "data/good.csv"], capsys)
+    _check(code, err, 2, ["chain.cfa:501:8:", "the model declares 1,500 factors; this tool fits at most 500"], before, corpus)
+
+
+def test_bootstrap_whose_resamples_all_fail(corpus, capsys):
+    lines = (corpus / "data" / "good.csv").read_text().splitlines()
+    # 7 rows for 6 variables: a resample has 7 distinct rows (a covariance matrix of full rank) with
+    # probability 7!/7^7 = .006, so with this seed none of the 10 can be fitted
+    (corpus / "data" / "few.csv").write_text("\n".join(lines[:8]) + "\n")
+    before = _snapshot(corpus)
+    code, _, err = _run(["bootstrap", "models/good.cfa", "--data", "data/few.csv", "--replications", "10",
+                         "--workers", "1"], capsys)
+    _check(code, err, 3, ["0 of 10 bootstrap resamples could be fitted"], before, corpus)
+
+
+def test_escape_sequences_never_reach_the_terminal(corpus, capsys):
+    data = (corpus / "data" / "good.csv").read_text().replace(",b\n", ",\x1b[2Jb\x1b]0;title\x07\n")
+    (corpus / "data" / "escapes.csv").write_text(data.replace("q1,", "q1\x1b[31m,", 1))
+    model = 'name "\x1b[2Jcleared"\nfactor f: "q1\x1b[31m", q2, q3\nfactor g: q4, q5, q6\n'
+    (corpus / "models" / "escapes.cfa").write_text(model)
+    code, out, err = _run(["fit", "models/escapes.cfa", "--data", "data/escapes.csv", "--group", "site"], capsys)
+    assert code == 0, err
+    assert "\x1b" not in out and "\x07" not in out
+    assert "\\x1b[2Jcleared" in out and "\\x1b[2Jb\\x1b]0;title\\x07" in out
+    code, out, err = _run(["fit", "models/escape_in_name.cfa", "--data", "data/good.csv"], capsys)
+    assert code == 2 and "\x1b" not in err

@@ -7,7 +7,7 @@ import pandas as pd
 import pytest
 
 import cfa_tool
-from cfa_tool.errors import DataError, OptionError
+from cfa_tool.errors import DataError, ModelError, OptionError
 from tests.conftest import THREE_FACTORS
 
 ITEMS = [f"x{i}" for i in range(1, 10)]
@@ -155,3 +155,129 @@ def test_filters_are_never_evaluated(hs_data):
     # a filter that would be code in a language is only ever compared as text
     with pytest.raises(DataError, match="no row is left"):
         cfa_tool.fit(THREE_FACTORS, hs_data, keep=["school = __import__('os').system('true')"])
+
+
+# ---------------------------------------------------------------- files as users have them
+
+
+def _clean_csv(hs_data) -> str:
+    return hs_data[["id", "school", "ageyr"] + ITEMS].round(6).to_csv(index=False)
+
+
+@pytest.mark.parametrize("change", [
+    "utf-16", "cp1252 byte 0x85 in the header", "line separator in the header", "form feed in the header",
+    "quoted line break in the header", "blank lines before the header", "semicolons in quoted names",
+    "empty field at the end of each row", "carriage returns only", "row names without a header cell",
+])
+def test_files_as_users_have_them_give_the_clean_result(tmp_path, hs_data, hs_three, change):
+    """Each variant of one file reads to the same data: the chi-square of Holzinger & Swineford's
+    three factors, 85.306 (recalled from memory, also test_holzinger_swineford_published.py)."""
+    text = _clean_csv(hs_data)
+    header, body = text.split("\n", 1)
+    encoding = "utf-8"
+    notes = []
+    if change == "utf-16":
+        encoding = "utf-16"
+    elif change == "cp1252 byte 0x85 in the header":
+        header, encoding = header.replace("ageyr", "age\x85yr"), "latin-1"
+    elif change == "line separator in the header":
+        header = header.replace("ageyr", "age\u2028yr")
+    elif change == "form feed in the header":
+        header = header.replace("ageyr", "age\x0cyr")
+    elif change == "quoted line break in the header":
+        header = header.replace("ageyr", '"age\nin years"')
+    elif change == "blank lines before the header":
+        header = "\n\n" + header
+    elif change == "semicolons in quoted names":
+        header = header.replace("id", '"id;number"').replace("school", '"school;name"').replace("ageyr", '"age;yr"')
+    elif change == "empty field at the end of each row":
+        body = "\n".join(line + "," for line in body.rstrip("\n").split("\n")) + "\n"
+        notes = ["empty fields at the end of the lines (a delimiter after the last value) were ignored"]
+    elif change == "carriage returns only":
+        header, body = header, body.replace("\n", "\r")
+    elif change == "row names without a header cell":
+        header = "," + header
+        body = "\n".join(f"pupil {k},{line}" for k, line in enumerate(body.rstrip("\n").split("\n"))) + "\n"
+        notes = ["the first column has no name in the header and was read as row names, not as data"]
+    path = tmp_path / "answers.csv"
+    path.write_bytes((header + ("\r" if change == "carriage returns only" else "\n") + body).encode(encoding))
+    result = cfa_tool.fit(THREE_FACTORS, path)
+    assert result.n_obs == 301
+    assert result.fit.chi_square == pytest.approx(hs_three.fit.chi_square, rel=1e-6)
+    for note in notes:
+        assert any(note in w for w in result.warnings), result.warnings
+
+
+def test_model_text_or_path_by_explicit_rules(tmp_path, hs_items):
+    long_text = "factor visual: x1, x2, x3  # " + "a long comment " * 30
+    assert len(long_text) > 255
+    assert cfa_tool.fit(long_text, hs_items).converged  # one long line is model text, never tried as a file
+    model = tmp_path / "three.cfa"
+    model.write_text(THREE_FACTORS)
+    assert cfa_tool.fit(str(model), hs_items).converged  # one line ending in .cfa: a model file
+    other = tmp_path / "three.txt"
+    other.write_text(THREE_FACTORS)
+    assert cfa_tool.fit(other, hs_items).converged  # a Path is a file, whatever its extension
+    with pytest.raises(ModelError, match="to read a model file, pass a pathlib.Path"):
+        cfa_tool.fit(str(other), hs_items)
+    with pytest.raises(ModelError, match="is a folder, not a model file"):
+        cfa_tool.fit(tmp_path, hs_items)
+    with pytest.raises(ModelError, match="does not exist"):
+        cfa_tool.fit(str(tmp_path / "missing.cfa"), hs_items)
+
+
+@pytest.mark.parametrize("options, words", [
+    ({"n_obs": float("nan")}, "must be a whole number, not nan"),
+    ({"n_obs": 300.7}, "must be a whole number, not 300.7"),
+    ({"n_obs": "301"}, "must be a whole number, not '301'"),
+    ({"sds": [1.0] * 8}, "give 9 positive standard deviations, one per variable (8 given)"),
+    ({"sds": [1.0] * 8 + [-1.0]}, "give 9 positive standard deviations, one per variable (9 given, not all positive)"),
+    ({"means": [0.0] * 10}, "give 9 finite means, one per variable (10 given)"),
+    ({"asymmetric": True}, "the matrix is not symmetric (row 1, column 2 differs from row 2, column 1)"),
+])
+def test_summary_statistics_from_python_are_checked_like_files(hs_items, options, words):
+    cov = hs_items[ITEMS].cov().to_numpy().copy()
+    if options.pop("asymmetric", False):
+        cov[1, 0] += 0.5
+    arguments = {"n_obs": 301, "variables": ITEMS, **options}
+    with pytest.raises((DataError, OptionError)) as info:
+        cfa_tool.fit(THREE_FACTORS, covariance=cov, **arguments)
+    assert words in str(info.value)
+
+
+def test_python_options_of_the_wrong_type(hs_items):
+    from cfa_tool.api import bootstrap
+
+    with pytest.raises(OptionError, match="the number of replications must be a whole number, not '10'"):
+        bootstrap(THREE_FACTORS, hs_items, replications="10")
+    with pytest.raises(OptionError, match="must be a whole number, not 20.5"):
+        bootstrap(THREE_FACTORS, hs_items, replications=20.5)
+    # one number for missing_codes is read as a list of one
+    coded = hs_items.copy()
+    coded.loc[0, "x1"] = -99
+    result = cfa_tool.fit(THREE_FACTORS, coded, missing_codes=-99)
+    assert result.n_obs == 300
+    with pytest.raises(OptionError, match="missing_codes must be a list of numbers"):
+        cfa_tool.fit(THREE_FACTORS, coded, missing_codes="-99")
+
+
+@pytest.mark.parametrize("column, words", [
+    (lambda n: pd.Series(pd.date_range("2020-01-01", periods=n)), "holds dates or times"),
+    (lambda n: pd.Series(np.arange(n) + 1j), "holds complex numbers"),
+    (lambda n: pd.Series(np.arange(n) % 2 == 0), "holds TRUE/FALSE values"),
+    (lambda n: pd.Series([10**400] + list(range(n - 1)), dtype=object), "the number is too large to compute with"),
+])
+def test_columns_that_are_not_numbers(hs_items, column, words):
+    frame = hs_items.copy()
+    frame["x1"] = column(len(frame))
+    with pytest.raises(DataError, match=words):
+        cfa_tool.fit(THREE_FACTORS, frame)
+
+
+def test_excel_dates_are_not_numbers(tmp_path, hs_items):
+    frame = hs_items.copy()
+    frame["x1"] = pd.date_range("2020-01-01", periods=len(frame))
+    path = tmp_path / "dates.xlsx"
+    frame.to_excel(path, index=False)
+    with pytest.raises(DataError, match="column 'x1' holds dates or times"):
+        cfa_tool.fit(THREE_FACTORS, path)

@@ -20,6 +20,11 @@ from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term
                                      second_derivative_contraction)
 
 
+class SingularMoments(ValueError):
+    """A sample covariance matrix that is not positive definite (a resample or simulated data set
+    with too few distinct rows); data read from files are checked before this can happen."""
+
+
 @dataclass(frozen=True)
 class Evaluation:
     value: float
@@ -70,7 +75,7 @@ class NormalLikelihood:
         for g in groups:
             logdet = log_det_pd(g.covariance)
             if logdet is None:
-                raise ValueError("sample covariance matrix is not positive definite")
+                raise SingularMoments("sample covariance matrix is not positive definite")
             self.logdet_S.append(logdet)
         self._active, self._basis, self._J = model.active, model.bases, model.active_J
         self._memo: dict = {}
