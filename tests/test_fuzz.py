@@ -163,3 +163,56 @@ def test_ordinal_fits_of_random_data(model, frame, how):
                        partial="auto")
     except CfaError:
         pass
+
+
+# ---------------------------------------------------------------- through the Python API and the file readers
+
+long_line = st.one_of(
+    st.lists(statement, min_size=1, max_size=30).map(" ".join),
+    st.text(min_size=200, max_size=3000).map(lambda s: s.replace("\n", " ")),
+    st.tuples(names, st.integers(200, 3000)).map(lambda t: f"factor f: {t[0] * t[1]}"),
+    st.integers(250, 5000).map(lambda n: "x" * n + ".cfa"),
+)
+SMALL = pd.DataFrame(np.random.default_rng(1).normal(size=(30, 6)), columns=["q1", "q2", "q3", "q4", "q5", "q6"])
+
+
+@settings(max_examples=max(200, EXAMPLES // 5), **SETTINGS)
+@given(long_line)
+def test_long_one_line_model_texts(text):
+    """A string is a model file only when it is one line ending in .cfa; anything else is model text,
+    and neither may end in an exception other than the tool's own (never 'File name too long')."""
+    try:
+        cfa_tool.check(text, SMALL)
+    except CfaError:
+        pass
+
+
+header_bytes = st.one_of(
+    st.binary(min_size=0, max_size=200),
+    st.lists(st.sampled_from([b"q1", b"q2", b"q3", b"q4", b"q5", b"q6", b"", b'"', b"\x85", b"\xe2\x80\xa8", b"\x0c",
+                              b"\r", b"\n", b";", b"\t", b"|", b",", b"\x00", b"\xff\xfe", b"\x1b[2J", b'"a\nb"']),
+             max_size=30).map(b"".join),
+)
+body_bytes = st.sampled_from([
+    SMALL.round(3).to_csv(index=False, header=False).encode(),
+    SMALL.round(3).to_csv(index=False, header=False, sep=";").encode(),
+    SMALL.round(3).to_csv(index=False, header=False).replace("\n", ",\n").encode(),
+    b"",
+    b"1,2,3\n4,5\n",
+])
+
+
+@settings(max_examples=max(200, EXAMPLES // 5), **SETTINGS)
+@given(header_bytes, body_bytes, st.binary(max_size=40))
+def test_random_header_bytes_and_csv_files(header, body, tail):
+    import tempfile
+
+    with tempfile.TemporaryDirectory() as folder:
+        path = os.path.join(folder, "fuzz.csv")
+        with open(path, "wb") as handle:
+            handle.write(header + b"\n" + body + tail)
+        try:
+            cfa_tool.fit("factor f: q1, q2, q3\nfactor g: q4, q5, q6\n", __import__("pathlib").Path(path),
+                         diagnostics=False, modification_indices=False)
+        except CfaError:
+            pass
