@@ -256,6 +256,9 @@ def check_ordinal_options(fit_options) -> None:
     if fit_options.missing != "listwise" or fit_options.test != "normal":
         raise OptionError("ordinal items are fitted with listwise deletion and their own adjusted test; full-information "
                           "ML and the Satorra-Bentler and Yuan-Bentler tests are for continuous items")
+    if fit_options.information is not None:
+        raise OptionError("ordinal items get robust (sandwich) standard errors from the least-squares fit, so an "
+                          "information matrix cannot be chosen; remove that option")
 
 
 def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, reference_group: str | None,

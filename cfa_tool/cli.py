@@ -159,8 +159,8 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--markdown", metavar="PATH", help="write the report as Markdown")
     p.add_argument("--diagram", metavar="PATH", help="write the path diagram as SVG (or PNG when PATH ends in .png and a converter is installed)")
     p.add_argument("--tables", metavar="FOLDER", help="write every table as CSV and as LaTeX (booktabs) into FOLDER")
-    p.add_argument("--information", choices=("expected", "observed"), default="expected",
-                   help="information matrix for standard errors (default: expected)")
+    p.add_argument("--information", choices=("expected", "observed"), default=None,
+                   help="information matrix for standard errors (default: expected; full-information ML uses observed)")
     p.add_argument("--mi-threshold", type=float, default=3.84, metavar="X",
                    help="show modification indices of at least X (default 3.84)")
     p.add_argument("--mi-top", type=int, default=None, metavar="N", help="show at most N modification indices")

@@ -44,7 +44,9 @@ TEST_CHOICES = ("normal", "satorra-bentler", "yuan-bentler")
 
 @dataclass(frozen=True)
 class FitOptions:
-    information: str = "expected"
+    # source of the standard errors: None means the estimator's own (expected information for complete
+    # data, observed information with full-information ML); robust tests use the sandwich
+    information: str | None = None
     mi_threshold: float = DEFAULT_MI_THRESHOLD
     mi_top: int | None = None
     max_iterations: int = 500
@@ -56,8 +58,15 @@ class FitOptions:
     def __post_init__(self) -> None:
         if self.test not in TEST_CHOICES:
             raise OptionError(f"test must be one of {', '.join(TEST_CHOICES)}, not '{self.test}'")
-        if self.information not in INFORMATION_CHOICES:
+        if self.information is not None and self.information not in INFORMATION_CHOICES:
             raise OptionError(f"information must be one of {', '.join(INFORMATION_CHOICES)}, not '{self.information}'")
+        if self.information is not None and self.test != "normal":
+            raise OptionError(f"with the {self.test} test the standard errors are robust (sandwich) ones, so an "
+                              f"information matrix ('{self.information}') cannot be chosen; remove that option")
+        if self.information == "expected" and self.missing == "full-information":
+            raise OptionError("with full-information ML the standard errors use the observed information, the one that "
+                              "stays valid when answers are missing at random (Kenward & Molenberghs 1998); the expected "
+                              "information assumes they are missing completely at random, so it is not offered")
         from cfa_tool import options as check
 
         object.__setattr__(self, "mi_threshold", check.real_number("the modification-index threshold", self.mi_threshold, 0.0))

@@ -445,6 +445,12 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
     if not multi:
         if refs:
             raise _fail(spec, f"'in group {refs[0].group}' needs groups: give the group column (--group COLUMN)", refs[0])
+        if spec.noninvariant:
+            raise _fail(spec, "'noninvariant' lets a parameter differ across groups, and this fit has no groups: give "
+                              "the group column (--group COLUMN) or remove the statement", spec.noninvariant[0])
+        if spec.invariant:
+            raise ModelError(f"the model holds {', '.join(spec.invariant)} equal across groups ('invariant'), and this "
+                             f"fit has no groups: give the group column (--group COLUMN) or remove the statement")
         return
     for ref in refs:
         if ref.group not in group_labels:
