@@ -96,6 +96,7 @@ def build_parser() -> argparse.ArgumentParser:
     sim.add_argument("--seed", type=int, default=1, help="random seed (default 1)")
     sim.add_argument("--categories", type=int, help="make ordinal items with this many categories")
     sim.add_argument("--missing", type=float, default=0.0, help="share of answers removed completely at random")
+    _add_json_option(sim)
 
     _add_resampling_command(sub, "cutoffs", "fit-index cutoffs simulated for this model and sample size", 200,
                             "samples per population")
@@ -327,7 +328,14 @@ def _simulation_command(args: argparse.Namespace) -> int:
 
         from cfa_tool.output_files import write_file
 
-        frame = simulate(read_model_file(args.model), args.n, args.seed, args.categories, args.missing)
+        simulated = simulate(read_model_file(args.model), args.n, args.seed, args.categories, args.missing)
+        frame = simulated.frame
+        if args.json != "-":
+            W.render_population(simulated, _console())
+        if args.json:
+            from cfa_tool.reporting.json_report import to_json
+
+            write_file(args._targets["--json"], to_json(simulated))
         write_file(args._targets["--output"], frame.to_csv(index=False, na_rep=""))
         _say(args, f"{len(frame)} rows of {frame.shape[1]} variables written to {args.output} (seed {args.seed})")
         return 0

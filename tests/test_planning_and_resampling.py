@@ -44,20 +44,38 @@ start covariance(f, g) = 0.15
 def test_simulation_recovers_population_values():
     spec = parse_model(POPULATION)
     population = population_from_spec(spec)
-    data = simulate(spec, 20000, seed=4)
+    data = simulate(spec, 20000, seed=4).frame
     result = cfa_tool.fit(spec, data)
     assert "loading(g, y7)" in population.defaulted and "loading(f, y2)" not in population.defaulted
     got = {r.variables: r.estimate for r in result.estimates if r.kind in ("loading", "factor_covariance")}
     assert got[("f", "y2")] == pytest.approx(0.8, abs=0.03)
-    assert got[("g", "y7")] == pytest.approx(0.7, abs=0.03)  # a default population value
+    # a default: standardized loading .7 like its marker's, so 1 in the marker's units
+    assert got[("g", "y7")] == pytest.approx(1.0, abs=0.04)
+    standardized = {r.variables: r.standardized for r in result.estimates if r.kind == "loading"}
+    assert standardized[("g", "y7")] == pytest.approx(0.7, abs=0.02)
     assert got[("f", "g")] == pytest.approx(0.15, abs=0.03)
     variances = data.var(ddof=0)
     assert np.allclose(variances[["y4", "y7", "y8"]], 1.0, atol=0.05)  # defaults give unit item variances
 
 
+@pytest.mark.parametrize("scaling", ["", "scale latent by variance\n", "scale latent by effects\n"])
+def test_default_population_is_standardized_whatever_the_scaling(scaling):
+    """Defaults are defined on the standardized metric (loadings .7, correlations .3, item variances
+    1) and converted to the model's scaling: refitting 20,000 simulated rows recovers them."""
+    text = "factor a: y1, y2, y3, y4\nfactor b: y5, y6, y7, y8\nfactor c: y9, y10, y11, y12\n" + scaling
+    data = simulate(parse_model(text), 20_000, seed=7).frame
+    result = cfa_tool.fit(text, data)
+    loadings = [r.standardized for r in result.estimates if r.kind == "loading"]
+    assert len(loadings) == 12 and all(abs(v - 0.7) < 0.02 for v in loadings)
+    correlations = [r.standardized for r in result.estimates if r.kind == "factor_covariance"]
+    assert all(abs(v - 0.3) < 0.03 for v in correlations)
+    assert np.allclose(data.var(ddof=0), 1.0, atol=0.04)
+
+
 def test_simulated_ordinal_and_missing_data():
-    data = simulate(parse_model(POPULATION), 3000, seed=5, categories=5, missing=0.1)
-    values = data.to_numpy()
+    data = simulate(parse_model(POPULATION), 3000, seed=5, categories=5, missing=0.1).frame
+    assert all(str(t) == "Int64" for t in data.dtypes)  # whole-number answers, written as 4, not 4.0
+    values = data.to_numpy(dtype=float, na_value=np.nan)
     assert set(np.unique(values[~np.isnan(values)])) == {1.0, 2.0, 3.0, 4.0, 5.0}
     assert np.isnan(values).mean() == pytest.approx(0.1, abs=0.01)
     counts = data["y1"].value_counts(normalize=True)
@@ -72,7 +90,7 @@ def test_monte_carlo_power_agrees_with_the_analytic_value():
     from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood
     from cfa_tool.model.implied import StructuredModel
 
-    spec = parse_model(POPULATION)
+    spec = parse_model(POPULATION + "start variance(f), variance(g) = 1\n")  # a factor correlation of .15
     population = population_from_spec(spec)
     n = 150
     model = StructuredModel(population.table)
@@ -152,7 +170,7 @@ def test_bollen_stine_p_is_roughly_uniform_under_a_true_model():
     spec = parse_model(POPULATION)
     ps = []
     for rep in range(12):
-        data = simulate(spec, 200, seed=100 + rep)
+        data = simulate(spec, 200, seed=100 + rep).frame
         _, boot = bootstrap(spec, data, replications=40, seed=rep, bca=False, workers=1)
         ps.append(boot.bollen_stine_p)
     # a uniform p has mean .5 and SD .29; with 12 draws the mean's SE is .08

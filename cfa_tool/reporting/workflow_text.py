@@ -136,6 +136,20 @@ def render_power(result, console: Console) -> None:
     console.print(f"Smallest N for power {result.target_power:g}: {result.required_n}")
 
 
+def render_population(simulated, console: Console) -> None:
+    """The population a simulation drew from: each free parameter, in the model's units and
+    standardized, and whether the model file gave it or it took the default."""
+    population = simulated.population
+    console.print(Text("Population values used", style="bold underline"))
+    console.print("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances 1) "
+                  "and converted to the model's scaling; values from 'start' and 'fix' statements replace them.")
+    table = _table("", [("Parameter", "left"), ("Value", "right"), ("Standardized", "right"), ("From", "left")])
+    for v in population.values():
+        table.add_row(f"{v['kind'].replace('_', ' ')} {', '.join(v['variables'])}", num(v["value"]),
+                      num(v["standardized"]), "default" if v["default"] else "model file")
+    console.print(table)
+
+
 def render_montecarlo(result, console: Console) -> None:
     console.print(Text(f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
                        style="bold underline"))

@@ -1,10 +1,17 @@
 """Population models and simulated data.
 
-Population values come from the model file: ``start`` (or ``fix``) statements
-give them; any free parameter without one takes a default: loadings 0.7,
-factor variances 1, factor covariances 0.3, residual covariances 0, and each
-indicator's residual variance set so that its total variance is 1 (0.1 when
-the loadings already exceed that).
+Population values come from the model file: ``start`` (or ``fix``) statements give
+them, in the model's own units.  Every free parameter without one takes a default
+defined on the standardized metric, whatever the model's scaling: standardized
+loadings .7 (.7 / sqrt(k) for an item on k factors), factor correlations .3 (paths of
+.7 from a higher-order factor), residual covariances 0, and each item's variance 1.
+That standardized population is converted to the model's own parameterization
+(marker, variance or effects scaling, fixed values, equal parameters) by fitting the
+model to its covariance matrix, which the model reproduces exactly.  Values the model
+file gives replace the defaults; the remaining defaults then follow the factor
+variances in force (a defaulted loading keeps its standardized value, a defaulted
+factor covariance its correlation of .3), and residual variances without a value are
+set so that each item's variance stays 1.
 """
 
 from __future__ import annotations
@@ -18,10 +25,12 @@ from cfa_tool import distributions as dist
 from cfa_tool import options as check
 from cfa_tool.errors import OptionError
 from cfa_tool.language.spec import Spec
-from cfa_tool.model.implied import StructuredModel
+from cfa_tool.model.implied import ModelMatrices, StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 
-DEFAULTS = {"loading": 0.7, "factor_variance": 1.0, "factor_covariance": 0.3, "residual_covariance": 0.0}
+#: Defaults on the standardized metric
+STANDARDIZED_LOADING = 0.7
+FACTOR_CORRELATION = 0.3
 
 
 @dataclass(frozen=True, eq=False)
@@ -36,31 +45,126 @@ class Population:
     def observed(self) -> tuple[str, ...]:
         return self.table.observed
 
+    def values(self) -> list[dict]:
+        """Each free parameter's population value, unstandardized and standardized, and whether it
+        was a default (for the report and JSON)."""
+        from cfa_tool.assessment.standardized import standardize_entries
+
+        model = StructuredModel(self.table)
+        entries = model.entry_values(self.theta)
+        codes, rows, cols = self.table.entry_arrays()
+        standardized = standardize_entries(model.matrices(self.theta), codes, rows, cols, entries)[0]
+        defaulted = set(self.defaulted)
+        out, seen = [], set()
+        for e, par in enumerate(self.table.parameters):
+            if not par.free or par.terms[0][0] in seen:
+                continue
+            seen.add(par.terms[0][0])
+            out.append({"kind": par.kind, "variables": list(par.variables), "value": float(entries[e]),
+                        "standardized": float(standardized[e]), "default": self.table.free_labels[par.terms[0][0]] in defaulted})
+        return out
+
+
+def standardized_population(table: ParameterTable) -> np.ndarray:
+    """The covariance matrix of the default population on the standardized metric, built from the
+    model's structure (which entries exist), not from its scaling."""
+    m, p = len(table.latent), len(table.observed)
+    L, B, P, T = np.zeros((p, m)), np.zeros((m, m)), np.zeros((m, m)), np.zeros((p, p))
+    codes, rows, cols = table.entry_arrays()
+    present = np.array([par.free or par.offset != 0.0 for par in table.parameters], dtype=bool)
+    paths = present & ((codes == 0) | (codes == 1))
+    per_item = np.bincount(rows[present & (codes == 0)], minlength=p)
+    per_factor = np.bincount(rows[present & (codes == 1)], minlength=m)
+    for code, r, c in zip(codes[paths], rows[paths], cols[paths]):
+        if code == 0:
+            L[r, c] = STANDARDIZED_LOADING / np.sqrt(per_item[r])
+        else:
+            B[r, c] = STANDARDIZED_LOADING / np.sqrt(per_factor[r])
+    covary = present & (codes == 2) & (rows != cols)
+    residual = present & (codes == 3) & (rows != cols)
+    # factor (disturbance) variances: 1 for factors without a higher-order factor, 1 - explained
+    # below one, found from the top down (a factor's total variance 1 once those above it are)
+    A = np.linalg.inv(np.eye(m) - B)
+    endogenous = B.any(axis=1)
+    P[np.diag_indices(m)] = 1.0
+    for _ in range(m):
+        total = A @ P @ A.T
+        explained = np.diag(B @ total @ B.T)
+        P[endogenous, endogenous] = np.clip(1.0 - explained[endogenous], 0.05, None)
+    sd = np.sqrt(np.diag(P))
+    for r, c in zip(rows[covary], cols[covary]):
+        P[r, c] = P[c, r] = FACTOR_CORRELATION * sd[r] * sd[c]
+    mats = ModelMatrices(L, B, P, T, np.zeros(p), np.zeros(m))
+    common = np.diag(mats.implied_covariance())
+    T[np.diag_indices(p)] = np.clip(1.0 - common, 0.05, None)
+    del residual  # residual covariances are 0 in the default population
+    return ModelMatrices(L, B, P, T, np.zeros(p), np.zeros(m)).implied_covariance()
+
+
+def _defaults_beside_given(table: ParameterTable, model: StructuredModel, theta: np.ndarray, open_: np.ndarray,
+                           target: np.ndarray, standardized_target: np.ndarray) -> np.ndarray:
+    """With some values given in the model file, the defaulted ones follow the factor variances in
+    force: a loading keeps its standardized default, a factor covariance its default correlation,
+    and each residual variance makes its item's variance 1.  Only parameters that are one matrix
+    entry each (not tied to others by 'equal' or effects coding) are adjusted."""
+    codes, rows, cols = table.entry_arrays()
+    uses = np.bincount([t[0] for par in table.parameters for t in par.terms], minlength=table.n_free)
+    simple = {}
+    for e, par in enumerate(table.parameters):
+        if len(par.terms) == 1 and par.terms[0][1] == 1.0 and uses[par.terms[0][0]] == 1 and open_[par.terms[0][0]]:
+            simple[par.terms[0][0]] = e
+    target_sd = np.sqrt(np.diag(target))
+    theta = theta.copy()
+    for _ in range(3):  # factor variances depend on higher-order paths: settle in a few rounds
+        mats = model.matrices(theta)
+        factor_sd = np.sqrt(np.clip(np.diag(mats.latent_covariance()), 1e-12, None))
+        for k, e in simple.items():
+            r, c = rows[e], cols[e]
+            if codes[e] == 0:  # loading of item r on factor c
+                theta[k] = standardized_target[e] * target_sd[r] / factor_sd[c]
+            elif codes[e] == 1:  # path from higher-order factor c to factor r
+                theta[k] = standardized_target[e] * factor_sd[r] / factor_sd[c]
+            elif codes[e] == 2 and r != c:
+                theta[k] = FACTOR_CORRELATION * factor_sd[r] * factor_sd[c]
+        residual = [(k, e) for k, e in simple.items() if codes[e] == 3 and rows[e] == cols[e]]
+        for k, _ in residual:
+            theta[k] = 0.0
+        common = np.diag(model.implied(theta))
+        for k, e in residual:
+            theta[k] = max(target_sd[rows[e]] ** 2 - common[rows[e]], 0.1)
+    return theta
+
+
+def standardized_entries(table: ParameterTable, model: StructuredModel, theta: np.ndarray) -> np.ndarray:
+    from cfa_tool.assessment.standardized import standardize_entries
+
+    codes, rows, cols = table.entry_arrays()
+    return standardize_entries(model.matrices(theta), codes, rows, cols, model.entry_values(theta))[0]
+
 
 def population_from_spec(spec: Spec) -> Population:
+    from cfa_tool.data.moments import SampleMoments
+    from cfa_tool.fitting import FitOptions, estimate
+
     table = build_parameter_table(spec)
     model = StructuredModel(table)
-    theta = table.start.copy()
+    given = table.start.copy()
     kind_of: dict[int, str] = {}
     for par in table.parameters:
         if len(par.terms) == 1:
             kind_of.setdefault(par.terms[0][0], par.kind)
-    defaulted = []
-    residual_slots = []
-    for k in range(table.n_free):
-        if np.isnan(theta[k]):
-            kind = kind_of.get(k, "loading")
-            if kind == "residual_variance":
-                residual_slots.append(k)
-                theta[k] = 0.0
-            else:
-                theta[k] = DEFAULTS.get(kind, 0.0)
-            defaulted.append(table.free_labels[k])
-    if residual_slots:
-        common = np.diag(model.implied(theta))
-        for k in residual_slots:
-            row = next(p.row for p in table.parameters if p.terms and p.terms[0][0] == k)
-            theta[k] = max(1.0 - common[row], 0.1)
+    target = standardized_population(table)
+    n = 1_000_000  # the moments are the population's: N only scales the (unused) test statistic
+    moments = SampleMoments(table.observed, target, np.zeros(table.p), n, n, 0, "<population>")
+    est = estimate(spec, [(None, moments)], FitOptions(diagnostics=False, modification_indices=False))
+    if not est.converged:
+        raise OptionError("the model's structure could not be given default population values (the model may not be "
+                          "identified); give them with 'start' statements")
+    theta = np.where(np.isnan(given), est.theta, given)
+    defaulted = [table.free_labels[k] for k in range(table.n_free) if np.isnan(given[k])]
+    if not np.isnan(given).all():
+        theta = _defaults_beside_given(table, model, theta, np.isnan(given), target,
+                                       standardized_entries(table, model, est.theta))
     sigma = model.implied(theta)
     if np.linalg.eigvalsh(sigma)[0] <= 0:
         raise OptionError("the population values imply a covariance matrix that is not positive definite")
@@ -80,9 +184,24 @@ def to_ordinal(rows: np.ndarray, sigma: np.ndarray, categories: int) -> np.ndarr
     return (np.searchsorted(cuts, rows / sd, side="right") + 1).astype(float)
 
 
-def simulate(spec: Spec, n: int, seed: int, categories: int | None = None, missing: float = 0.0) -> pd.DataFrame:
+@dataclass(frozen=True, eq=False)
+class SimulatedData:
+    """Rows simulated from a population, with the population they came from."""
+
+    frame: pd.DataFrame
+    population: Population
+    seed: int
+    categories: int | None
+    missing: float
+
+    def to_dict(self) -> dict:
+        return {"rows": len(self.frame), "variables": list(self.frame.columns), "seed": self.seed,
+                "categories": self.categories, "missing_share": self.missing, "population": self.population.values()}
+
+
+def simulate(spec: Spec, n: int, seed: int, categories: int | None = None, missing: float = 0.0) -> SimulatedData:
     """Data from the model's population values: continuous, or ordinal with ``categories``
-    categories, with a share ``missing`` of answers removed completely at random."""
+    categories (whole numbers 1..k), with a share ``missing`` of answers removed completely at random."""
     n = check.whole_number("the number of rows to simulate", n, 1)
     seed = check.seed(seed)
     missing = check.real_number("the share of missing answers", missing, 0.0, 1.0, open_high=True)
@@ -99,4 +218,7 @@ def simulate(spec: Spec, n: int, seed: int, categories: int | None = None, missi
         rows = to_ordinal(rows, population.sigma, categories)
     if missing:
         rows[rng.random(rows.shape) < missing] = np.nan
-    return pd.DataFrame(rows, columns=list(population.observed))
+    frame = pd.DataFrame(rows, columns=list(population.observed))
+    if categories is not None:  # answers are whole numbers (a nullable integer type keeps the gaps)
+        frame = frame.astype("Int64")
+    return SimulatedData(frame, population, seed, categories, missing)
