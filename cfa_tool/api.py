@@ -20,7 +20,7 @@ from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.fitting import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec
-from cfa_tool.results import FitResult
+from cfa_tool.results import CheckResult, FitResult
 
 
 def load_spec(model: str | os.PathLike | Spec) -> Spec:
@@ -191,7 +191,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         else:
             moments, notes = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
-        if fit_options.missing != "listwise" or fit_options.test != "normal":
+        if fit_options.missing == "full-information" or fit_options.test != "normal":
             raise OptionError("summary statistics allow only the normal-theory test with complete data")
         result = fit_moments(spec, moments, replace(fit_options, diagnostics=False))
         return replace(result, warnings=tuple(notes) + result.warnings)
@@ -203,16 +203,14 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     if ordinal_items:
         result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
         return replace(result, warnings=tuple(notes) + result.warnings)
+    fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
+    notes = missing_notes + notes
     groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
     notes += group_notes
     result = fit_moments(spec, groups, fit_options, group_column=group)
     every_row_complete = (sum(m.n_obs for _, m in groups) == len(frame)
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
     summary = None if every_row_complete else missing_summary(frame, spec.observed_names)
-    if fit_options.missing == "full-information":
-        dropped = sum(m.rows_dropped for _, m in groups)
-        if dropped:
-            notes.append(f"{dropped} rows answered none of the model variables and were left out")
     labels = {
         "variables": {k: v for k, v in loaded.variable_labels.items() if k in spec.observed_names},
         "values": {k: v for k, v in loaded.value_labels.items() if k in spec.observed_names},
@@ -221,6 +219,29 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                    missing_data=summary if summary is not None and (summary["n_patterns"] > 1
                                                                     or not all(summary["coverage"].values())) else None,
                    labels=labels if labels["variables"] or labels["values"] else None)
+
+
+def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, ...],
+                            group: str | None) -> tuple[object, list[str]]:
+    """Rows with missing answers are kept by default: full-information ML when a model variable has
+    a gap, listwise deletion only when asked for (or when nothing is missing, where the two agree)."""
+    if fit_options.missing is not None:
+        return fit_options, []
+    if fit_options.test == "yuan-bentler":  # the robust test of full-information ML
+        return replace(fit_options, missing="full-information"), []
+    columns = frame[list(names)]
+    if group is not None and group in frame.columns:
+        columns = columns[frame[group].notna()]
+    gaps = int(columns.isna().any(axis=1).sum())
+    if not gaps:
+        return replace(fit_options, missing="listwise"), []
+    if fit_options.test == "satorra-bentler":
+        raise OptionError(f"{gaps} rows have missing answers on model variables, so the fit uses full-information ML, "
+                          f"whose robust test is Yuan-Bentler (--test yuan-bentler); for the Satorra-Bentler test of the "
+                          f"complete rows only, choose --missing listwise")
+    note = (f"{gaps} of {len(columns)} rows miss some answers on model variables; every answer is used by "
+            f"full-information ML (the default when answers are missing; --missing listwise would leave those rows out)")
+    return replace(fit_options, missing="full-information"), [note]
 
 
 def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: set[str], group: str | None,
@@ -253,7 +274,7 @@ def continuous_only(spec: Spec, command: str) -> Spec:
 
 
 def check_ordinal_options(fit_options) -> None:
-    if fit_options.missing != "listwise" or fit_options.test != "normal":
+    if fit_options.missing == "full-information" or fit_options.test != "normal":
         raise OptionError("ordinal items are fitted with listwise deletion and their own adjusted test; full-information "
                           "ML and the Satorra-Bentler and Yuan-Bentler tests are for continuous items")
     if fit_options.information is not None:
@@ -317,8 +338,11 @@ def make_options(options: dict) -> FitOptions:
         raise OptionError(f"unknown option: {exc}") from None
 
 
-def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, **read_options) -> Spec:
-    """Parse and validate a model against data without fitting it."""
+def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None,
+          **read_options) -> CheckResult:
+    """Parse and validate a model against data without fitting it; the result says how many rows
+    are complete, how many have gaps (used by full-information ML, the default) and each item's
+    coverage."""
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
@@ -328,12 +352,21 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         moments, _ = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
         check_counting_rule(spec, build_parameter_table(spec))
-        return spec
+        return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0,
+                           {name: 1.0 for name in spec.observed_names}, None)
     spec, frame, source = read_inputs(model, data, **read_options)
-    groups, _ = moments_for(spec, frame, source, group)
+    options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
+    groups, _ = moments_for(spec, frame, source, group, missing=options.missing)
     labels = tuple(label for label, _ in groups) if group is not None else None
-    check_counting_rule(spec, build_parameter_table(spec, labels))
-    return spec
+    check_counting_rule(spec, build_parameter_table(spec, labels, mean_structure=options.missing == "full-information"))
+    answered = frame[list(spec.observed_names)].notna()
+    if group is not None:
+        answered = answered[frame[group].notna()]
+    complete = int(answered.all(axis=1).sum())
+    empty = int((~answered.any(axis=1)).sum())
+    coverage = {name: float(v) for name, v in answered.mean(axis=0).items()} if len(answered) else {}
+    return CheckResult(spec, source, len(answered), complete, len(answered) - complete - empty, empty, coverage,
+                       labels)
 
 
 def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 1000, seed: int = 1,

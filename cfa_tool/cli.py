@@ -168,8 +168,9 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
     _add_test_option(p)
     _add_ordinal_options(p)
-    p.add_argument("--missing", choices=("listwise", "full-information"), default="listwise",
-                   help="rows with missing answers: left out (listwise, the default) or used by full-information ML")
+    p.add_argument("--missing", choices=("listwise", "full-information"), default=None,
+                   help="rows with missing answers: used by full-information ML (the default when a model variable has "
+                        "gaps) or left out (listwise)")
 
 
 def _add_ordinal_options(p: argparse.ArgumentParser) -> None:
@@ -256,8 +257,9 @@ def _run(args: argparse.Namespace) -> int:
     if args.command == "check":
         from cfa_tool.api import check
 
-        spec = check(args.model, args.data, group=args.group, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep)
-        print(f"{args.model}: model is valid: {len(spec.factors)} factors, {len(spec.observed_names)} indicators, all found in {args.data}")
+        found = check(args.model, args.data, group=args.group, sheet=args.sheet, missing_codes=args.missing_codes,
+                      keep=args.keep)
+        print(printable(found.summary(), keep_newlines=True))
         return 0
     if args.command == "demo":
         return _fit_and_report(args, args.model, args.data)

@@ -42,6 +42,9 @@ INFORMATION_CHOICES = ("expected", "observed")
 TEST_CHOICES = ("normal", "satorra-bentler", "yuan-bentler")
 
 
+LISTWISE_WARNING_SHARE = 0.05  # more rows lost than this to listwise deletion: a prominent warning (common practice)
+
+
 @dataclass(frozen=True)
 class FitOptions:
     # source of the standard errors: None means the estimator's own (expected information for complete
@@ -53,7 +56,9 @@ class FitOptions:
     test: str = "normal"
     diagnostics: bool = True  # Mardia's tests, reliability, normalized residuals, case diagnostics
     modification_indices: bool = True  # (workflows and loops that refit many times turn these off)
-    missing: str = "listwise"
+    # rows with missing answers: "full-information" or "listwise"; None lets cfa_tool.fit decide from the
+    # data (full information when a model variable has a gap), and means listwise elsewhere
+    missing: str | None = None
 
     def __post_init__(self) -> None:
         if self.test not in TEST_CHOICES:
@@ -74,11 +79,11 @@ class FitOptions:
             object.__setattr__(self, "mi_top", check.whole_number("the number of modification indices to show", self.mi_top, 0))
         object.__setattr__(self, "max_iterations",
                            check.whole_number("the iteration limit", self.max_iterations, 1, check.MAX_ITERATIONS))
-        if self.missing not in MISSING_CHOICES:
+        if self.missing is not None and self.missing not in MISSING_CHOICES:
             raise OptionError(f"missing must be one of {', '.join(MISSING_CHOICES)}, not '{self.missing}'")
         if self.missing == "full-information" and self.test == "satorra-bentler":
             raise OptionError("the Satorra-Bentler test needs complete rows; with full-information ML use --test yuan-bentler")
-        if self.test == "yuan-bentler" and self.missing != "full-information":
+        if self.test == "yuan-bentler" and self.missing == "listwise":
             raise OptionError("the Yuan-Bentler test goes with full-information ML (--missing full-information); "
                               "for complete rows use --test satorra-bentler")
 
@@ -208,10 +213,17 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     for label, m in groups:
         if m.rows_dropped:
             where = f" in group '{label}'" if label is not None else ""
-            warnings.append(
-                f"{m.rows_dropped} of {m.rows_read} rows{where} had a missing answer on a model variable and were left out "
-                f"(listwise deletion); {m.n_obs} rows were analysed"
-            )
+            if options.missing == "full-information":
+                warnings.append(f"{m.rows_dropped} of {m.rows_read} rows{where} answered none of the model variables and "
+                                f"were left out")
+            elif m.rows_dropped > LISTWISE_WARNING_SHARE * m.rows_read:
+                warnings.insert(0, f"listwise deletion left out {m.rows_dropped} of {m.rows_read} rows{where} "
+                                   f"({100 * m.rows_dropped / m.rows_read:.0f}%) because they miss an answer on a model "
+                                   f"variable; full-information ML (--missing full-information) would use every answer "
+                                   f"they have, and the rows left out may differ from those kept")
+            else:
+                warnings.append(f"{m.rows_dropped} of {m.rows_read} rows{where} had a missing answer on a model variable "
+                                f"and were left out (listwise deletion); {m.n_obs} rows were analysed")
     fit = None
     robust = None
     inference = None

@@ -63,6 +63,41 @@ class EstimateRow:
 
 
 @dataclass(frozen=True)
+class CheckResult:
+    """What ``check`` found: the parsed model and how the data cover its variables."""
+
+    spec: object  # the parsed model (language.spec.Spec)
+    source: str
+    rows: int  # rows read (with a group, rows with a group label)
+    complete: int  # rows that answer every model variable
+    with_gaps: int  # rows that answer some but not all (used by full-information ML)
+    empty: int  # rows that answer none (left out)
+    coverage: dict  # share of rows answering each model variable
+    groups: tuple[str, ...] | None
+
+    def summary(self) -> str:
+        spec = self.spec
+        lines = [f"The model is valid: {len(spec.factors)} factor{'s' if len(spec.factors) != 1 else ''}, "
+                 f"{len(spec.observed_names)} indicators, all found in {self.source}."]
+        if self.groups:
+            lines.append(f"Groups: {len(self.groups)} ({', '.join(self.groups)}).")
+        lines.append(f"Rows: {self.rows} read, {self.complete} complete, {self.with_gaps} with missing answers "
+                     f"(used by full-information ML, the default), {self.empty} with no answer to any model variable.")
+        low = sorted((v, k) for k, v in self.coverage.items() if v < 1)
+        if low:
+            rest = "; every other item 100%" if len(low) < len(self.coverage) else ""
+            lines.append("Coverage (share of rows answering): " + ", ".join(f"{k} {100 * v:.0f}%" for v, k in low[:10])
+                         + (f", and {len(low) - 10} more below 100%" if len(low) > 10 else "") + rest + ".")
+        return "\n".join(lines)
+
+    def to_dict(self) -> dict:
+        return {"valid": True, "source": self.source, "factors": list(self.spec.factor_names),
+                "indicators": list(self.spec.observed_names), "rows": self.rows, "complete_rows": self.complete,
+                "rows_with_gaps": self.with_gaps, "rows_without_answers": self.empty, "coverage": dict(self.coverage),
+                "groups": list(self.groups) if self.groups else None}
+
+
+@dataclass(frozen=True)
 class DataSummary:
     source: str
     rows_read: int

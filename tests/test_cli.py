@@ -59,7 +59,10 @@ def test_fit_prints_report_and_writes_json(workdir):
     row = result["estimates"][0]
     assert set(row) == {"kind", "variables", "group", "free", "estimate", "se", "z", "p_value", "ci95", "standardized",
                         "standardized_latent"}
-    assert result["n_obs"] == 471 and result["converged"] is True
+    # 9 of the demo's 480 rows miss an answer: by default every row is used, by full-information ML
+    assert result["n_obs"] == 480 and result["converged"] is True
+    assert "full information" in result["estimator"]
+    assert any("9 of 480 rows miss some answers" in w for w in result["warnings"])
     assert all(m["index"] >= 3.84 for m in result["modification_indices"])
     assert not list(workdir.glob(".*.tmp"))
 

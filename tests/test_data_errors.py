@@ -92,7 +92,7 @@ def test_unknown_column_suggests_a_near_name():
 def test_listwise_deletion_is_reported():
     data = _frame(60)
     data.loc[[3, 9], "a"] = np.nan
-    result = cfa_tool.fit(MODEL, data)
+    result = cfa_tool.fit(MODEL, data, missing="listwise")
     assert result.n_obs == 58
     assert result.data.rows_dropped == 2
     assert any("2 of 60 rows" in w for w in result.warnings)

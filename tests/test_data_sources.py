@@ -28,7 +28,7 @@ def test_spss_file_with_value_labels_and_user_missing_codes(tmp_path, hs_items):
     pyreadstat.write_sav(data, str(path), column_labels={"x1": "Visual perception"},
                          variable_value_labels={"rating": {1: "strongly disagree", 5: "strongly agree"}},
                          missing_ranges={"x1": [-99.0]})
-    result = cfa_tool.fit(THREE_FACTORS, path)
+    result = cfa_tool.fit(THREE_FACTORS, path, missing="listwise")
     assert result.n_obs == 299 and result.data.rows_dropped == 2
     assert result.labels["variables"] == {"x1": "Visual perception"}
     rated = cfa_tool.fit("factor f: x1, x2, rating\n", path)
@@ -76,7 +76,7 @@ def test_missing_codes_in_a_plain_file(tmp_path, hs_items):
     data.loc[[6], "x7"] = 999
     path = tmp_path / "codes.csv"
     data.to_csv(path, index=False)
-    result = cfa_tool.fit(THREE_FACTORS, path, missing_codes=(-99, 999))
+    result = cfa_tool.fit(THREE_FACTORS, path, missing_codes=(-99, 999), missing="listwise")
     assert result.n_obs == 297
 
 
@@ -255,7 +255,7 @@ def test_python_options_of_the_wrong_type(hs_items):
     # one number for missing_codes is read as a list of one
     coded = hs_items.copy()
     coded.loc[0, "x1"] = -99
-    result = cfa_tool.fit(THREE_FACTORS, coded, missing_codes=-99)
+    result = cfa_tool.fit(THREE_FACTORS, coded, missing_codes=-99, missing="listwise")
     assert result.n_obs == 300
     with pytest.raises(OptionError, match="missing_codes must be a list of numbers"):
         cfa_tool.fit(THREE_FACTORS, coded, missing_codes="-99")

@@ -9,6 +9,7 @@ import pandas as pd
 import pytest
 
 import cfa_tool
+from cfa_tool.errors import OptionError
 from cfa_tool.estimation.em import em_saturated
 from cfa_tool.estimation.patterns import pattern_data
 from tests.conftest import THREE_FACTORS
@@ -114,7 +115,7 @@ def test_fiml_is_less_biased_than_listwise_under_mar():
     data.loc[drop, ["y4", "y5", "y6"]] = np.nan
     model = "factor f: y1..y6\n"
     fiml = cfa_tool.fit(model, data, missing="full-information")
-    listwise = cfa_tool.fit(model, data)
+    listwise = cfa_tool.fit(model, data, missing="listwise")
     var_fiml = [r.estimate for r in fiml.estimates if r.kind == "factor_variance"][0]
     var_listwise = [r.estimate for r in listwise.estimates if r.kind == "factor_variance"][0]
     assert abs(var_fiml - 1.0) < 0.08
@@ -192,3 +193,29 @@ def test_closed_form_fiml_hessian_matches_differences_of_the_gradient(hs_holes, 
     closed = est.likelihood.observed_hessian(theta)
     numeric = difference_hessian(est.likelihood.gradient, theta, central=True)
     assert np.abs(closed - numeric).max() < 1e-6 * np.abs(numeric).max()
+
+
+def test_rows_with_gaps_are_kept_by_default(hs_holes):
+    """With about 10% of answers missing at random, the default fit uses all 301 rows by full-information
+    ML (the same estimates as asking for it), and says so; listwise deletion, asked for, keeps about a
+    third of the rows and warns first."""
+    default = cfa_tool.fit(THREE_FACTORS, hs_holes)
+    explicit = cfa_tool.fit(THREE_FACTORS, hs_holes, missing="full-information")
+    assert default.n_obs == 301 and "full information" in default.estimator
+    np.testing.assert_allclose([r.estimate for r in default.estimates], [r.estimate for r in explicit.estimates],
+                               rtol=1e-10)
+    assert default.fit.chi_square == pytest.approx(explicit.fit.chi_square, rel=1e-10)
+    assert any("rows miss some answers on model variables; every answer is used by full-information ML" in w
+               for w in default.warnings)
+    listwise = cfa_tool.fit(THREE_FACTORS, hs_holes, missing="listwise")
+    assert listwise.n_obs < 130
+    assert listwise.warnings[0].startswith(f"listwise deletion left out {301 - listwise.n_obs} of 301 rows")
+    found = cfa_tool.check(THREE_FACTORS, hs_holes)
+    assert (found.rows, found.complete, found.with_gaps, found.empty) == (301, listwise.n_obs, 301 - listwise.n_obs, 0)
+    assert all(0.8 < share < 1 for share in found.coverage.values())
+
+
+def test_satorra_bentler_with_gaps_needs_a_choice(hs_holes):
+    with pytest.raises(OptionError, match="whose robust test is Yuan-Bentler"):
+        cfa_tool.fit(THREE_FACTORS, hs_holes, test="satorra-bentler")
+    assert cfa_tool.fit(THREE_FACTORS, hs_holes, test="satorra-bentler", missing="listwise").robust is not None

@@ -110,7 +110,7 @@ def test_methods_paragraph_reports_the_numbers(demo_result):
     text = methods_paragraph(demo_result)
     f = demo_result.fit
     assert f"chi-square({f.df}) = {f.chi_square:.2f}" in text
-    assert "N = 471" in text and "maximum likelihood" in text and "90% CI [" in text and "SRMR" in text
+    assert "N = 480" in text and "maximum likelihood" in text and "90% CI [" in text and "SRMR" in text
 
 
 def test_notebook_display(demo_result):

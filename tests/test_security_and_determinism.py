@@ -55,7 +55,7 @@ def _json(*args: str) -> str:
 
 
 def test_json_is_byte_identical_across_runs(tmp_path):
-    for args in (("fit", str(MODEL), "--data", str(DATA), "--test", "satorra-bentler"),
+    for args in (("fit", str(MODEL), "--data", str(DATA), "--test", "satorra-bentler", "--missing", "listwise"),
                  ("invariance", str(MODEL), "--data", str(DATA), "--group", "district", "--partial", "auto"),
                  ("compare", str(MODEL.parent / "rider_one_factor.cfa"), str(MODEL), "--data", str(DATA)),
                  ("replicate", str(MODEL), "--data", str(DATA), "--seed", "9")):
