@@ -187,8 +187,28 @@ def test_model_specific_cutoffs(hs_data):
     if rmsea95.cutoff is not None:
         assert 0.0 < rmsea95.cutoff < 0.2
     assert {c.index for c in cut.cutoffs} == {"cfi", "rmsea", "srmr"}
+    for c in cut.cutoffs:  # where no cutoff exists at N = 301, the search says at what N or size one does
+        if c.cutoff is None:
+            assert c.separating_n is None or c.separating_n in (602, 1204, 2408, 4816)
+            assert c.separating_size is None or c.separating_size > cut.misspecification_size
+            assert c.separating_n is not None or c.separating_size is not None
     _, again = cutoffs(THREE_FACTORS, hs_data, replications=60, seed=3, workers=2)
     assert cut.to_dict() == again.to_dict()
+
+
+def test_cutoff_rule_on_distributions_of_known_overlap():
+    """The rule (a cutoff exists when 95% of misspecified samples lie beyond it and 95% of correct ones do
+    not; McNeish & Wolf 2023) on samples drawn from distributions whose overlap is known by construction."""
+    from cfa_tool.workflows.cutoffs import _cutoffs
+
+    rng = np.random.default_rng(0)
+    correct = np.column_stack([1 - np.abs(rng.normal(0, 0.02, 100)), np.abs(rng.normal(0, 0.02, 100)),
+                               np.abs(rng.normal(0.02, 0.005, 100))])
+    wrong = np.column_stack([0.97 - np.abs(rng.normal(0, 0.02, 100)), 0.03 + np.abs(rng.normal(0, 0.02, 100)),
+                             0.05 + np.abs(rng.normal(0, 0.005, 100))])
+    found = _cutoffs(correct, wrong)
+    assert found[("srmr", 0.95)] is not None  # SRMR distributions 0.02 +- .005 and 0.05+: well apart
+    assert found[("cfi", 0.95)] is None  # CFI distributions overlap
 
 
 def test_cluster_gives_the_same_result_as_local_processes():

@@ -167,6 +167,8 @@ def render_montecarlo(result, console: Console) -> None:
 
 
 def render_cutoffs(pair, console: Console) -> None:
+    from cfa_tool.workflows.cutoffs import N_STEPS, SIZE_STEPS
+
     result, cut = pair
     console.print(Text(f"Model-specific fit cutoffs for {result.model_name}", style="bold underline"))
     console.print(f"{cut.replications} samples of N = {cut.n_obs} from the fitted model and from the model with "
@@ -175,10 +177,20 @@ def render_cutoffs(pair, console: Console) -> None:
                                ("Reading", "left")])
     for c in cut.cutoffs:
         if c.cutoff is None:
-            reading = "no value separates the two at this level"
+            found = ([f"by N = {c.separating_n:,}"] if c.separating_n is not None else []) + (
+                [f"for a misspecification of {unit(c.separating_size, 2)} at this N"] if c.separating_size is not None else [])
+            reading = f"none at N = {cut.n_obs:,}" + ("; one exists " + ", or ".join(found) if found else
+                                                      "; none either at 16 times this N or 3 times the misspecification")
         else:
             reading = "beyond the cutoff: misfit at least that large is likely" if c.beyond else "within the cutoff"
         table.add_row(c.index.upper(), f"{100 * c.level:.0f}%", unit(c.cutoff) if c.cutoff is not None else "",
                       unit(c.observed), reading)
     console.print(table)
+    if any(c.cutoff is None for c in cut.cutoffs):
+        console.print(f"Where no cutoff exists, these fit indices cannot tell this model from one with {cut.misspecification} "
+                      f"left out at this sample size: a good value of them is no evidence against that misspecification. "
+                      f"Look at the modification indices and residual correlations for it, or gather more data. The "
+                      f"sample sizes and sizes of misspecification quoted were found by simulating at "
+                      f"{', '.join(map(str, N_STEPS))} times this N and {', '.join(f'{s:g}' for s in SIZE_STEPS)} times "
+                      f"the misspecification, not by extrapolating.")
     console.print("These cutoffs hold for this model, sample size and kind of misspecification only; they are guides, not laws.")

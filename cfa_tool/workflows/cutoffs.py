@@ -41,6 +41,10 @@ class Cutoff:
     cutoff: float | None  # None: the distributions overlap too much at this level
     observed: float
     beyond: bool | None  # the observed value is on the misspecified side of the cutoff
+    # where no cutoff exists at this N: the smallest simulated N at which one does, and the smallest
+    # simulated multiple of the misspecification that would give one at this N (None: not within the search)
+    separating_n: int | None = None
+    separating_size: float | None = None
 
     def to_dict(self) -> dict:
         return clean(dict(self.__dict__))
@@ -55,11 +59,13 @@ class CutoffResult:
     seed: int
     n_obs: int
     cutoffs: tuple[Cutoff, ...]
+    misspecification_size: float = float("nan")  # standardized size of what is left out
 
     def to_dict(self) -> dict:
         return clean({"misspecification": self.misspecification, "replications": self.replications,
                       "converged_correct": self.converged_correct, "converged_misspecified": self.converged_misspecified,
-                      "seed": self.seed, "n_obs": self.n_obs, "cutoffs": [c.to_dict() for c in self.cutoffs]})
+                      "seed": self.seed, "n_obs": self.n_obs, "misspecification_size": self.misspecification_size,
+                      "cutoffs": [c.to_dict() for c in self.cutoffs]})
 
 
 def _replicate(task):
@@ -69,7 +75,11 @@ def _replicate(task):
     return fit.converged, fit.cfi, fit.rmsea, fit.srmr
 
 
-def misspecified_covariance(spec: Spec, result: FitResult) -> tuple[np.ndarray, str]:
+N_STEPS = (2, 4, 8, 16)  # multiples of N tried when no cutoff exists at the data's N
+SIZE_STEPS = (1.5, 2.0, 3.0)  # multiples of the misspecification tried at the data's N
+
+
+def misspecified_covariance(spec: Spec, result: FitResult, scale: float = 1.0) -> tuple[np.ndarray, str, float]:
     table = build_parameter_table(spec)
     model = StructuredModel(table)
     mats = model.matrices(result.theta)
@@ -91,16 +101,20 @@ def misspecified_covariance(spec: Spec, result: FitResult) -> tuple[np.ndarray, 
         if not others:
             raise OptionError("every item already loads on every factor; there is no cross-loading to leave out")
         target = max(others, key=lambda j: abs(corr[own[item], j]))
+        size *= scale
         L[item, target] = size * sd_obs[item] / sd_lat[target]
         what = f"a cross-loading of {size:.2f} (standardized) of {names[item]} on {factors[target]}"
     else:
         if len(names) < 2:
             raise OptionError("a model with one item has nothing to misspecify")
-        r = 0.30
+        r = size = min(0.30 * scale, 0.95)
         T[0, 1] = T[1, 0] = r * np.sqrt(T[0, 0] * T[1, 1])
         what = f"a residual correlation of {r:.2f} between {names[0]} and {names[1]}"
     G = L @ mats.A
-    return G @ mats.P @ G.T + T, what
+    wrong = G @ mats.P @ G.T + T
+    if np.linalg.eigvalsh(wrong)[0] <= 0:
+        raise ValueError("not positive definite")
+    return wrong, what, size
 
 
 def cutoff_options(replications: int, seed: int, workers: int | None) -> tuple[int, int]:
@@ -115,26 +129,75 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
         raise OptionError("model-specific cutoffs need a converged single-group fit")
     replications, seed = cutoff_options(replications, seed, workers)
     n = result.n_obs
-    wrong, what = misspecified_covariance(spec, result)
-    seeds = np.random.SeedSequence(seed).generate_state(2 * replications)
-    tasks = [(spec, result.implied_covariance, result.observed, n, int(s), result.theta) for s in seeds[:replications]]
-    tasks += [(spec, wrong, result.observed, n, int(s), result.theta) for s in seeds[replications:]]
-    draws = run_tasks(_replicate, tasks, workers, cluster, progress)
-    correct = np.array([d[1:] for d in draws[:replications] if d[0]])
-    mis = np.array([d[1:] for d in draws[replications:] if d[0]])
+    wrong, what, size = misspecified_covariance(spec, result)
+    seeds = np.random.SeedSequence(seed)
+    sample = _sampler(spec, result, replications, seeds, workers, cluster, progress)
+    correct, mis = sample(result.implied_covariance, n), sample(wrong, n)
     if len(correct) < 10 or len(mis) < 10:
         raise OptionError("too few simulated fits converged to set cutoffs")
     observed = {"cfi": result.fit.cfi, "rmsea": result.fit.rmsea, "srmr": result.fit.srmr}
+    found = _cutoffs(correct, mis)
+    # where no cutoff exists, find (by simulating, not by formula) the N, or the size of the
+    # misspecification, at which one would: the researcher learns what these data can detect
+    separating_n: dict[tuple[str, float], int] = {}
+    separating_size: dict[tuple[str, float], float] = {}
+    for multiple in N_STEPS:
+        if all(key in separating_n or cut is not None for key, cut in found.items()):
+            break
+        bigger = multiple * n
+        more = _cutoffs(sample(result.implied_covariance, bigger), sample(wrong, bigger))
+        for key, cut in more.items():
+            if found[key] is None and cut is not None:
+                separating_n.setdefault(key, bigger)
+    for multiple in SIZE_STEPS:
+        if all(key in separating_size or cut is not None for key, cut in found.items()):
+            break
+        try:
+            stronger, _, _ = misspecified_covariance(spec, result, multiple)
+        except ValueError:  # the stronger misspecification is not a possible population
+            break
+        more = _cutoffs(correct, sample(stronger, n))
+        for key, cut in more.items():
+            if found[key] is None and cut is not None:
+                separating_size.setdefault(key, multiple * size)
     cutoffs = []
+    for (index, level), cut in found.items():
+        beyond = None
+        if cut is not None:
+            beyond = bool(observed[index] < cut) if index == "cfi" else bool(observed[index] > cut)
+        cutoffs.append(Cutoff(index, level, cut, float(observed[index]), beyond,
+                              separating_n.get((index, level)), separating_size.get((index, level))))
+    return CutoffResult(what, replications, len(correct), len(mis), seed, n, tuple(cutoffs), size)
+
+
+def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.SeedSequence, workers, cluster, progress):
+    """A function (population covariance, N) -> the fit indices of the converged simulated samples;
+    each call draws fresh seeds from the one seed sequence, so the whole run repeats exactly."""
+
+    def sample(sigma: np.ndarray, n: int) -> np.ndarray:
+        states = seeds.spawn(1)[0].generate_state(replications)
+        tasks = [(spec, sigma, result.observed, n, int(s), result.theta) for s in states]
+        draws = run_tasks(_replicate, tasks, workers, cluster, progress)
+        return np.array([d[1:] for d in draws if d[0]]).reshape(-1, len(INDICES))
+
+    return sample
+
+
+def _cutoffs(correct: np.ndarray, mis: np.ndarray) -> dict[tuple[str, float], float | None]:
+    """Each index's cutoff at each level, or None where the two distributions overlap too much: a cutoff
+    exists when the level's share of misspecified samples lies beyond it and the same share of correct
+    ones does not."""
+    out: dict[tuple[str, float], float | None] = {}
     for k, index in enumerate(INDICES):
         for level in LEVELS:
+            if len(correct) < 10 or len(mis) < 10:
+                out[(index, level)] = None
+                continue
             if index == "cfi":  # misspecified samples have low CFI
                 cut = float(np.quantile(mis[:, k], level))
                 ok = np.quantile(correct[:, k], 1 - level) >= cut
-                beyond = observed[index] < cut
             else:
                 cut = float(np.quantile(mis[:, k], 1 - level))
                 ok = np.quantile(correct[:, k], level) <= cut
-                beyond = observed[index] > cut
-            cutoffs.append(Cutoff(index, level, cut if ok else None, float(observed[index]), bool(beyond) if ok else None))
-    return CutoffResult(what, replications, len(correct), len(mis), seed, n, tuple(cutoffs))
+            out[(index, level)] = cut if ok else None
+    return out
