@@ -40,6 +40,26 @@ def test_ladder_chi_squares(hs_ladder):
     assert hs_ladder.steps[1].holds and not hs_ladder.steps[2].holds
 
 
+def test_configural_model_is_judged_on_its_own_fit(hs_ladder):
+    """The configural model is not 'holding' by default: Holzinger-Swineford's three factors across the two
+    schools misfit (CFI .923, RMSEA .097 by this fit; guide values CFI >= .95, RMSEA <= .06, common
+    practice), so every later step is marked as conditional on a rejected model and the report says so first."""
+    configural = hs_ladder.steps[0]
+    assert configural.versus_previous is None and not configural.holds
+    assert configural.result.fit.cfi < 0.95
+    assert all(step.conditional for step in hs_ladder.steps[1:])
+    assert hs_ladder.warnings[0].startswith("the configural model does not fit by the guide values (CFI .923")
+    assert hs_ladder.to_dict()["steps"][1]["conditional_on_a_rejected_step"] is True
+
+
+def test_two_groups_list_each_constraint_test_once(hs_ladder):
+    """With two groups, releasing an equality in one group or the other is one test (same statistic)."""
+    scalar = hs_ladder.steps[2]
+    keys = [(c.kind, c.variables) for c in scalar.culprits]
+    assert keys and len(keys) == len(set(keys))
+    assert {c.group for c in scalar.culprits} == {"Pasteur"}
+
+
 def test_configural_is_the_sum_of_separate_group_fits(hs_data, hs_ladder):
     configural = hs_ladder.steps[0].result
     shares = {g.label: g.chi_square for g in configural.groups}
@@ -105,7 +125,8 @@ MODEL = "factor f: q1..q4\nfactor g: q5..q8\n"
 
 def test_ladder_holds_when_the_population_is_invariant():
     result = invariance(MODEL, _two_groups(0.0, 21), "site")
-    assert all(step.holds for step in result.steps)
+    assert all(step.holds for step in result.steps)  # the configural model too, on its own fit
+    assert not any(step.conditional for step in result.steps)
     means = {r.variables: r.estimate for r in result.steps[2].result.estimates if r.kind == "mean" and r.group == "b"}
     assert means[("f",)] == pytest.approx(0.3, abs=0.12)
 

@@ -52,6 +52,8 @@ def render_comparison(comparison, console: Console) -> None:
 def render_invariance(result, console: Console) -> None:
     console.print(Text(f"Measurement invariance across {result.group_column} ({', '.join(result.groups)})", style="bold underline"))
     console.print(f"Reference group (factor means fixed at zero): {result.groups[0]}")
+    for w in result.warnings:  # problems first
+        console.print(Text(f"Warning: {w}", style="bold"))
     table = _table("The ladder", [("Level", "left"), ("Chi-square", "right"), ("df", "right"), ("p", "right"),
                                   ("CFI", "right"), ("RMSEA", "right"), ("Difference", "right"), ("df", "right"),
                                   ("p", "right"), ("Change in CFI", "right"), ("Change in RMSEA", "right"), ("Holds", "left")])
@@ -66,13 +68,18 @@ def render_invariance(result, console: Console) -> None:
         else:
             cells = [f"{fit.chi_square:.3f}", str(fit.df), p_value(fit.p_value), unit(fit.cfi), unit(fit.rmsea)]
         diff = _difference_cells(step.versus_previous) if step.versus_previous is not None else [""] * 5
-        table.add_row(step.level, *cells, *diff, "yes" if step.holds else "no")
+        verdict = ("yes" if step.holds else "no") + (" *" if step.conditional else "")
+        table.add_row(step.level, *cells, *diff, verdict)
     console.print(table)
+    if any(step.conditional for step in result.steps):
+        console.print("* tested after a step that did not hold: the comparison is between models already rejected.")
     if adjusted:
         console.print("Ordinal items: chi-square, CFI and RMSEA come from the scale-shifted adjusted statistic, and each "
                       "difference test is adjusted in the same way (Asparouhov & Muthen 2006).")
-    console.print(f"A step holds when its chi-square difference test has p >= {unit(result.alpha, 2)}. Common-practice guides: "
-                  f"change in CFI no lower than -.01 (Cheung & Rensvold 2002), change in RMSEA below .015 (Chen 2007).")
+    console.print(f"The configural model holds when it fits by the guide values (CFI >= .95, RMSEA <= .06, SRMR <= .08; Hu & "
+                  f"Bentler 1999); each later step holds when its chi-square difference test has p >= "
+                  f"{unit(result.alpha, 2)}. Common-practice guides: change in CFI no lower than -.01 (Cheung & Rensvold "
+                  f"2002), change in RMSEA below .015 (Chen 2007). All guides are conventions, not laws.")
     if result.freed:
         freed = _table("Parameters freed by the partial-invariance search",
                        [("Level", "left"), ("Parameter", "left"), ("Score test", "right")])
@@ -84,8 +91,6 @@ def render_invariance(result, console: Console) -> None:
             top = step.culprits[:5]
             console.print(f"Likeliest sources of misfit at the {step.level} step (score tests): " + "; ".join(
                 f"{c.kind.replace('_', ' ')} {', '.join(c.variables)} in {c.group} ({c.index:.2f})" for c in top))
-    for w in result.warnings:
-        console.print(f"Warning: {w}")
     console.print(Text(HIGH_STAKES_NOTE, style="italic"))
 
 

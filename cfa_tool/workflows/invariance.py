@@ -43,6 +43,9 @@ ORDINAL_LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
 )
 CFI_GUIDE = -0.01  # Cheung & Rensvold (2002)
 RMSEA_GUIDE = 0.015  # Chen (2007)
+#: The configural model is judged on its own fit, by the report's guide values (Hu & Bentler 1999; common
+#: practice, not laws): CFI at least .95, RMSEA at most .06, SRMR at most .08
+CONFIGURAL_GUIDES = {"cfi": 0.95, "rmsea": 0.06, "srmr": 0.08}
 PARTIAL_CHOICES = ("none", "auto")
 MAX_FREED_PER_STEP = 10
 SEARCH_WARNING = (
@@ -71,6 +74,8 @@ class InvarianceStep:
     versus_previous: DifferenceTest | None
     holds: bool
     culprits: tuple[ModificationIndex, ...]  # score tests of this step's constraints, largest first
+    # tested after a step that did not hold: the comparison is between models already rejected
+    conditional: bool = False
 
     def to_dict(self) -> dict:
         vs = None
@@ -85,6 +90,9 @@ class InvarianceStep:
             "robust": clean(self.result.robust.to_dict()) if self.result.robust is not None else None,
             "versus_previous": vs,
             "holds": self.holds,
+            "judged_by": "its own fit (CFI, RMSEA and SRMR guide values)" if self.versus_previous is None
+            else "the difference test against the step before",
+            "conditional_on_a_rejected_step": self.conditional,
             "constraint_tests": [clean(c.to_dict()) for c in self.culprits[:10]],
         }
 
@@ -150,22 +158,67 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
                                         tuple(notes) + (f"the {level} model did not converge; the ladder stops there",))
             test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
-            holds = test is None or not (test.p_value < alpha)
+            holds = configural_fits(result) if test is None else not (test.p_value < alpha)
             culprits = tuple(ladder.constraint_tests(est, kinds)) if kinds else ()
-            culprits = tuple(c for c in culprits if _may_free(c, exceptions, level_spec, kinds))
+            culprits = _one_per_constraint(tuple(c for c in culprits if _may_free(c, exceptions, level_spec, kinds)),
+                                           labels)
             if holds or partial == "none" or not culprits or sum(f.level == level for f in freed) >= MAX_FREED_PER_STEP:
                 break
             top = culprits[0]
             exceptions.append(ParameterRef(_ref_kind(top.kind), _ref_names(top), spec.factors[0].name.location))
             freed.append(FreedParameter(level, top.kind, _ref_names(top), top.group, top.index))
             start = None
-        steps.append(InvarianceStep(level, result, test, holds, culprits))
+        conditional = any(not s.holds for s in steps)
+        steps.append(InvarianceStep(level, result, test, holds, culprits, conditional))
         previous = (est, result)
         start = est.theta
     warnings = list(notes)
+    if not steps[0].holds:
+        fit = _fit_values(steps[0].result)
+        warnings.insert(0, "the configural model does not fit by the guide values (" + ", ".join(
+            f"{k.upper()} {_decimal(v)}" for k, v in fit.items()) + "): every later step compares models that already "
+            "misfit, so its test says little about invariance; first find out why the model misfits (fit it in each "
+            "group alone and read the modification indices and residuals), then test invariance")
+    elif any(s.conditional for s in steps):
+        first = next(s.level for s in steps if not s.holds)
+        warnings.insert(0, f"the {first} step did not hold, so the steps after it compare models that already fail "
+                           f"it; they are marked as conditional on a rejected step")
     if freed:
         warnings.append(SEARCH_WARNING)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, tuple(warnings))
+
+
+def _decimal(value: float) -> str:
+    """Three decimals without the leading zero of a value below 1, as journals print fit indices."""
+    text = f"{value:.3f}"
+    return text[1:] if text.startswith("0.") else text
+
+
+def _fit_values(result: FitResult) -> dict[str, float]:
+    """CFI, RMSEA and SRMR of a fit: the robust (adjusted) CFI and RMSEA for ordinal items."""
+    fit, robust = result.fit, result.robust
+    if robust is not None:
+        return {"cfi": robust.cfi_robust, "rmsea": robust.rmsea_robust, "srmr": fit.srmr}
+    return {"cfi": fit.cfi, "rmsea": fit.rmsea, "srmr": fit.srmr}
+
+
+def configural_fits(result: FitResult) -> bool:
+    """The configural model on its own fit, by :data:`CONFIGURAL_GUIDES` (a perfect fit with 0 df counts as fitting)."""
+    if result.fit is None:
+        return False
+    if result.fit.df == 0:
+        return True
+    values = _fit_values(result)
+    return (values["cfi"] >= CONFIGURAL_GUIDES["cfi"] and values["rmsea"] <= CONFIGURAL_GUIDES["rmsea"]
+            and values["srmr"] <= CONFIGURAL_GUIDES["srmr"])
+
+
+def _one_per_constraint(tests: tuple[ModificationIndex, ...], labels: tuple[str, ...]) -> tuple[ModificationIndex, ...]:
+    """With two groups, releasing an equality in either group is the same test: keep it once (under the
+    second group, where it differs from the reference)."""
+    if len(labels) != 2:
+        return tests
+    return tuple(t for t in tests if t.group != labels[0])
 
 
 class NormalLadder:
