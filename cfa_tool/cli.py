@@ -376,18 +376,27 @@ class _Pair(tuple):
 
 
 def _progress(label: str):
-    """A progress bar on standard error when it is a terminal; otherwise silence."""
-    import contextlib
-
+    """A progress bar on standard error when it is a terminal (count done of the count announced,
+    percentage, time remaining); otherwise silence."""
     if not sys.stderr.isatty():
         return contextlib.nullcontext(None)
-    from rich.progress import Progress
+    from rich.console import Console
+    from rich.progress import BarColumn, MofNCompleteColumn, Progress, TaskProgressColumn, TextColumn, TimeRemainingColumn
 
     @contextlib.contextmanager
     def bar():
-        with Progress(transient=True) as progress:
-            task = progress.add_task(label, total=None)
-            yield lambda k: progress.advance(task, k)
+        columns = (TextColumn("{task.description}"), BarColumn(), MofNCompleteColumn(), TaskProgressColumn(),
+                   TextColumn("remaining"), TimeRemainingColumn())
+        with Progress(*columns, transient=True, console=Console(stderr=True)) as progress:
+            task = progress.add_task(label, total=0)
+
+            def advance(done: int, more: int = 0) -> None:
+                if more:
+                    progress.update(task, total=progress.tasks[0].total + more)
+                if done:
+                    progress.advance(task, done)
+
+            yield advance
 
     return bar()
 

@@ -17,9 +17,12 @@ def default_workers() -> int:
 
 
 def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, cluster: str | None = None,
-              progress: Callable[[int], None] | None = None, chunk: int = 25) -> list:
-    """fn(task) for every task, results in task order.  ``progress(k)`` is called as tasks finish."""
+              progress: Callable[..., None] | None = None, chunk: int = 25) -> list:
+    """fn(task) for every task, results in task order.  ``progress(0, more=n)`` announces the n tasks
+    before they start (a workflow may run several batches), and ``progress(k)`` is called as tasks finish."""
     workers = check.workers(workers)
+    if progress:
+        progress(0, more=len(tasks))
     if cluster:
         return _run_on_cluster(fn, tasks, cluster, progress)
     workers = default_workers() if workers is None else workers
