@@ -523,7 +523,6 @@ def _console():
     from cfa_tool.reporting.terminal import SafeConsole
 
     console = SafeConsole(highlight=False, markup=False, emoji=False)
-    console.width = max(console.width, 120)  # tables stay readable when piped or in a narrow window
     return console
 
 

@@ -11,14 +11,22 @@ def html_text(value) -> str:
     return html.escape(str(value), quote=True)
 
 
-_MARKDOWN_SPECIAL = re.compile(r"([\\`*_{}\[\]()#+\-.!|<>~])")
+# Characters that change the meaning of text inside a paragraph or a table cell: emphasis, code,
+# links, table delimiters, the escape itself.  Dots, parentheses and hyphens inside a line are plain
+# text in Markdown (CommonMark) and stay as they are, so the raw file reads as normal text.
+_MARKDOWN_SPECIAL = re.compile(r"([\\`*_\[\]|~])")
 
 
 def markdown_text(value) -> str:
-    """Backslash-escape Markdown punctuation; angle brackets become entities so no HTML passes through."""
-    text = str(value).replace("\n", " ")
+    """Backslash-escape the Markdown punctuation that would change the text's meaning; angle brackets
+    become entities so no HTML passes through; a '#', '+', '-' or '>' at the start cannot make a heading
+    or a list."""
+    text = " ".join(str(value).splitlines())
     text = _MARKDOWN_SPECIAL.sub(r"\\\1", text)
-    return text.replace("\\<", "&lt;").replace("\\>", "&gt;")
+    text = re.sub(r"<(?=[A-Za-z/!?])", "&lt;", text)  # only what could open an HTML tag ("p < .05" stays)
+    if text[:1] in ("#", "+", "-", "=", ">"):
+        text = "\\" + text
+    return text
 
 
 _LATEX = {

@@ -196,7 +196,7 @@ def case_table(result, group: int = 0) -> ReportTable | None:
     if not cases:
         return None
     return _table(f"cases_{group}", "Rows that contribute most to the chi-square",
-                  [("Data row", "r"), ("Share of chi-square", "r"), ("Mahalanobis distance", "r"), ("p", "r")],
+                  [("Data row", "r"), ("Share of chi-square", "r"), ("Squared Mahalanobis distance", "r"), ("p", "r")],
                   [[str(c.row), num(c.chi_square_share, 2), num(c.mahalanobis, 2), p_value(c.p_value)] for c in cases[:5]],
                   "Each row's share sums over all rows to the chi-square; large shares and distances point at rows worth checking.")
 
