@@ -194,7 +194,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         if fit_options.missing == "full-information" or fit_options.test != "normal":
             raise OptionError("summary statistics allow only the normal-theory test with complete data")
         result = fit_moments(spec, moments, replace(fit_options, diagnostics=False))
-        return replace(result, warnings=tuple(notes) + result.warnings)
+        return _described(replace(result, warnings=tuple(notes) + result.warnings), spec, None)
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
@@ -202,7 +202,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ordinal_items = ordinal_items_of(spec, ordinal)
     if ordinal_items:
         result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
-        return replace(result, warnings=tuple(notes) + result.warnings)
+        labels = tuple(g.label for g in result.groups) if group is not None else None
+        return _described(replace(result, warnings=tuple(notes) + result.warnings), spec, labels)
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
     notes = missing_notes + notes
     groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
@@ -215,10 +216,11 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         "variables": {k: v for k, v in loaded.variable_labels.items() if k in spec.observed_names},
         "values": {k: v for k, v in loaded.value_labels.items() if k in spec.observed_names},
     }
-    return replace(result, warnings=tuple(notes) + result.warnings,
-                   missing_data=summary if summary is not None and (summary["n_patterns"] > 1
-                                                                    or not all(summary["coverage"].values())) else None,
-                   labels=labels if labels["variables"] or labels["values"] else None)
+    result = replace(result, warnings=tuple(notes) + result.warnings,
+                     missing_data=summary if summary is not None and (summary["n_patterns"] > 1
+                                                                      or not all(summary["coverage"].values())) else None,
+                     labels=labels if labels["variables"] or labels["values"] else None)
+    return _described(result, spec, tuple(label for label, _ in groups) if group is not None else None)
 
 
 def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, ...],
@@ -242,6 +244,14 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     note = (f"{gaps} of {len(columns)} rows miss some answers on model variables; every answer is used by "
             f"full-information ML (the default when answers are missing; --missing listwise would leave those rows out)")
     return replace(fit_options, missing="full-information"), [note]
+
+
+def _described(result: FitResult, spec: Spec, groups: tuple[str, ...] | None) -> FitResult:
+    """The result with the description of exactly the model fitted (for the methods paragraph)."""
+    from cfa_tool.model.description import describe
+    from cfa_tool.model.parameters import build_parameter_table
+
+    return replace(result, description=describe(spec, build_parameter_table(spec, groups)))
 
 
 def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: set[str], group: str | None,

@@ -189,6 +189,7 @@ class FitResult:
     theta: np.ndarray | None = field(repr=False, default=None)
     missing_data: dict | None = None  # coverage per item and missing-data patterns
     labels: dict | None = None  # variable and value labels from SPSS/Stata files
+    description: object | None = None  # model.description.ModelDescription: what exactly was fitted
 
     # -- single-group conveniences (the first group when there are several)
     @property

@@ -52,7 +52,7 @@ def test_html_report_has_every_section_and_no_external_assets(demo_result):
     f = demo_result.fit
     for words in ("Summary for a paper", "Path diagram", "Model fit", "Loadings", "Factor covariances", "Residual correlations",
                   "Largest modification indices", "Items (analysed rows)", "not laws", "licensed professional",
-                  f"chi-square({f.df}) = {f.chi_square:.2f}"):
+                  f"\u03c7\u00b2({f.df}) = {f.chi_square:.2f}"):
         assert words in page, words
     assert "<script" not in page
     assert not re.search(r'(src|href)\s*=\s*["\']?(https?:)?//', page)
@@ -109,7 +109,7 @@ def test_user_strings_are_escaped_in_every_format(hostile_result):
 def test_methods_paragraph_reports_the_numbers(demo_result):
     text = methods_paragraph(demo_result)
     f = demo_result.fit
-    assert f"chi-square({f.df}) = {f.chi_square:.2f}" in text
+    assert f"\u03c7\u00b2({f.df}) = {f.chi_square:.2f}" in text
     assert "N = 480" in text and "maximum likelihood" in text and "90% CI [" in text and "SRMR" in text
 
 
@@ -170,3 +170,42 @@ def test_methods_paragraph_names_the_estimator_that_was_used():
     assert "polychoric" in ordinal and "maximum likelihood" not in ordinal and "scale-shifted" in ordinal
     fiml = methods_paragraph(cfa_tool.fit(MODEL, DATA, missing="full-information", test="yuan-bentler"))
     assert "full-information maximum likelihood" in fiml and "Yuan-Bentler" in fiml and "excluded listwise" not in fiml
+
+
+HS_BASE = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+
+
+@pytest.mark.parametrize("extra, words", [
+    ("covary x7, x8\ncovary x8, x9\n", ["two residual covariances (x7 with x8 and x8 with x9)"]),
+    ("", ["three correlated factors (visual, textual, and speed)",
+          "fixing the loading of one indicator to 1 (x1 for visual, x4 for textual, and x7 for speed)"]),
+    ("uncorrelated visual, speed\n", ["three correlated factors", "The covariance of visual and speed was fixed at zero."]),
+    ("x9, x1", ["a cross-loading of x1 (on visual and speed)"]),
+    ("equal loading(visual, x2), loading(visual, x3)\n",
+     ["The loading of x2 on visual and the loading of x3 on visual were constrained to be equal."]),
+    ("fix variance(x5) = 0.4\n", ["The residual variance of x5 was fixed at 0.4."]),
+    ("bound variance(x9) >= 0\n", ["The residual variance of x9 was kept at or above 0."]),
+    ("scale latent by variance\n", ["The scale of each factor was set by fixing its variance to 1."]),
+    ("scale latent by effects\n", ["set by effects coding", "Little, Slegers & Card, 2006"]),
+    ("factor g: visual, textual, speed\nscale latent by variance\n",
+     ["with a higher-order factor (g) explaining visual, textual, and speed,",
+      "The scales of visual, textual, and speed were set by fixing their disturbance variances to 1"]),
+])
+def test_methods_paragraph_describes_each_model_feature(hs_data, extra, words):
+    model = HS_BASE.replace("x7, x8, x9", extra) if extra == "x9, x1" else HS_BASE + extra
+    model = model.replace("x9, x1", "x7, x8, x9, x1")
+    text = methods_paragraph(cfa_tool.fit(model, hs_data))
+    for w in words:
+        assert w in text, (w, text)
+    assert "\u03c7\u00b2(" in text and "CFI = ." in text and "0." not in text.split("CFI")[1][:8]
+
+
+def test_methods_paragraph_states_missing_data_handling_and_groups(hs_data):
+    holes = hs_data.copy().reset_index(drop=True)
+    holes.loc[:29, "x1"] = np.nan  # rows 0 to 29
+    full = methods_paragraph(cfa_tool.fit(HS_BASE, holes))
+    assert "full-information maximum likelihood" in full and "including rows with missing answers" in full
+    listwise = methods_paragraph(cfa_tool.fit(HS_BASE, holes, missing="listwise"))
+    assert "30 of 301 rows with missing answers were excluded listwise" in listwise and "N = 271" in listwise
+    grouped = methods_paragraph(cfa_tool.fit(HS_BASE + "invariant loadings\n", hs_data, group="school"))
+    assert "in 2 groups defined by school" in grouped and "Held equal across groups: loadings." in grouped

@@ -1,9 +1,24 @@
-"""A methods-and-results paragraph in the style journals in psychology ask for
-(APA-like: chi-square(df) = x, p; CFI; TLI; RMSEA [90% CI]; SRMR)."""
+"""A methods-and-results paragraph as psychology journals ask for it (APA 7th edition style:
+chi-square with its degrees of freedom, p, CFI, TLI, RMSEA with its 90% interval, SRMR;
+no leading zero for values that cannot exceed 1).
+
+The paragraph describes exactly the model fitted: every departure from simple structure
+(cross-loadings, residual covariances, uncorrelated factors, higher-order factors,
+equal, fixed and bounded parameters), how each factor got its scale, the estimator and
+test, how missing answers were handled (with counts), and the groups.  It reads all of
+that from the result's model description, never from a generic template.
+"""
 
 from __future__ import annotations
 
 from cfa_tool.reporting.numbers import unit
+
+CHI = "\u03c7\u00b2"
+WORDS = {1: "one", 2: "two", 3: "three", 4: "four", 5: "five", 6: "six", 7: "seven", 8: "eight", 9: "nine", 10: "ten"}
+
+
+def _count(n: int, noun: str, plural: str | None = None) -> str:
+    return f"{WORDS.get(n, str(n))} {noun if n == 1 else (plural or noun + 's')}"
 
 
 def _p(p: float) -> str:
@@ -11,9 +26,14 @@ def _p(p: float) -> str:
 
 
 def _list(words: list[str]) -> str:
+    words = list(words)
     if len(words) <= 2:
         return " and ".join(words)
     return ", ".join(words[:-1]) + ", and " + words[-1]
+
+
+def _pair(pair) -> str:
+    return f"{pair[0]} with {pair[1]}"
 
 
 def _estimator_phrase(result) -> str:
@@ -23,8 +43,8 @@ def _estimator_phrase(result) -> str:
         extra = " and polyserial" if "polyserial" in text else ""
         return f"{kind} least squares on polychoric{extra} correlations of the ordinal items, with robust standard errors"
     if "full information" in text:
-        base = "full-information maximum likelihood, which uses every available answer"
-        return base + (" (Yuan-Bentler scaled test, robust standard errors)" if result.robust is not None else "")
+        base = "full-information maximum likelihood"
+        return base + (" with the Yuan-Bentler scaled test and robust standard errors" if result.robust is not None else "")
     if result.robust is not None:
         return "maximum likelihood with the Satorra-Bentler scaled test and robust standard errors"
     return "maximum likelihood"
@@ -36,55 +56,158 @@ def _test_phrase(method: str) -> str:
     return f"{method} scaled chi-square test"
 
 
+def _structure(result, d) -> str:
+    n_first = len(d.first_order)
+    if n_first == 1:
+        factors = f"one factor ({d.first_order[0]})"
+    else:
+        kind = "correlated factors" if d.correlated_factors else "factors"
+        factors = f"{_count(n_first, kind[:-1], kind)} ({_list(d.first_order)})"
+    text = f"{_count(len(d.indicators), 'indicator')} of {factors}"
+    for higher, lower in d.higher_order:
+        text += f", with a higher-order factor ({higher}) explaining {_list(lower)},"
+    return text
+
+
+def _parameter(ref: tuple, d) -> str:
+    """A parameter in words: 'the loading of x2 on visual', 'the residual variance of x5'."""
+    kind, names, group = ref
+    residual = "residual " if names and names[0] in d.indicators else ""
+    text = {
+        "loading": lambda: f"the loading of {names[1]} on {names[0]}" if len(names) == 2 else f"a loading of {names}",
+        "variance": lambda: f"the {residual}variance of {names[0]}",
+        "covariance": lambda: f"the {residual}covariance of {names[0]} and {names[1]}",
+        "intercept": lambda: f"the intercept of {names[0]}",
+        "mean": lambda: f"the mean of {names[0]}",
+        "threshold": lambda: f"the thresholds of {names[0]}",
+    }.get(kind, lambda: f"{kind}({', '.join(names)})")()
+    return text + (f" in group {group}" if group is not None else "")
+
+
+def _scale_sentence(d) -> str:
+    by_method: dict[tuple, list] = {}
+    for s in d.scales:
+        by_method.setdefault((s.method, s.below_higher_order and s.method == "variance"), []).append(s)
+    parts = []
+    for (method, disturbance), scales in by_method.items():
+        names = [s.factor for s in scales]
+        whose = "each factor" if len(scales) == len(d.scales) and len(scales) > 1 else (
+            "the factor" if len(d.scales) == 1 else _list(names))
+        subject = f"the scales of {whose} were" if len(scales) > 1 and whose != "each factor" else f"the scale of {whose} was"
+        if method == "marker":
+            markers = _list([f"{s.marker} for {s.factor}" for s in scales]) if len(scales) > 1 else scales[0].marker
+            parts.append(f"{subject} set by fixing the loading of one indicator to 1 ({markers})")
+        elif method == "variance":
+            which = "disturbance variance" if disturbance else "variance"
+            whose = _list(names) if disturbance else whose
+            subject = f"the scales of {whose} were" if len(scales) > 1 and whose != "each factor" else f"the scale of {whose} was"
+            parts.append(f"{subject} set by fixing {'their' if len(names) > 1 and whose != 'each factor' else 'its'} "
+                         f"{which}{'s' if len(names) > 1 and whose != 'each factor' else ''} to 1")
+        elif method == "effects":
+            parts.append(f"{subject} set by effects coding, the loadings of each factor constrained to average 1 "
+                         f"(Little, Slegers & Card, 2006)")
+        else:
+            parts.append(f"{subject} set by parameters the model fixes")
+    sentence = "; ".join(parts)
+    return sentence[0].upper() + sentence[1:] + "."
+
+
+def _departures(d) -> str:
+    parts = []
+    for item, factors in d.cross_loadings:
+        parts.append(f"a cross-loading of {item} (on {_list(list(factors))})")
+    if d.residual_covariances:
+        n = len(d.residual_covariances)
+        parts.append(f"{_count(n, 'residual covariance')} ({_list([_pair(p) for p in d.residual_covariances])})")
+    if d.factor_covariances_added:
+        parts.append(f"{_count(len(d.factor_covariances_added), 'covariance')} between factor disturbances "
+                     f"({_list([_pair(p) for p in d.factor_covariances_added])})")
+    sentences = []
+    if parts:
+        sentences.append(f"The model also included {_list(parts)}.")
+    if d.uncorrelated:
+        pairs = _list([f"{a} and {b}" for a, b in d.uncorrelated])
+        sentences.append(f"The covariance{'s' if len(d.uncorrelated) > 1 else ''} of {pairs} "
+                         f"{'were' if len(d.uncorrelated) > 1 else 'was'} fixed at zero.")
+    for group in d.equal:
+        sentences.append(f"{_capital(_list([_parameter(r, d) for r in group]))} were constrained to be equal.")
+    if d.fixed:
+        sentences.append(_capital(_list([f"{_parameter(r, d)} was fixed at {value:g}" for r, value in d.fixed])) + ".")
+    if d.bounds:
+        def bound(ref, lo, hi):
+            if lo is not None and hi is not None:
+                return f"{_parameter(ref, d)} was kept between {lo:g} and {hi:g}"
+            return f"{_parameter(ref, d)} was kept at or above {lo:g}" if lo is not None else \
+                f"{_parameter(ref, d)} was kept at or below {hi:g}"
+        sentences.append(_capital(_list([bound(*b) for b in d.bounds])) + ".")
+    return " ".join(sentences)
+
+
+def _capital(text: str) -> str:
+    return text[:1].upper() + text[1:]
+
+
+def _sample_phrase(result) -> str:
+    data = result.data
+    text = f"N = {result.n_obs}"
+    full_information = "full information" in result.estimator
+    if full_information and result.missing_data is not None:
+        coverage = result.missing_data.get("coverage", {})
+        low = min(coverage.values()) if coverage else 1.0
+        text += (f"; every answer of every row was used, including rows with missing answers (item coverage "
+                 f"{unit(low, 2)} or higher)")
+    if data.rows_dropped:
+        if full_information:
+            text += f"; {data.rows_dropped} of {data.rows_read} rows answered no model variable and were left out"
+        else:
+            text += f"; {data.rows_dropped} of {data.rows_read} rows with missing answers were excluded listwise"
+    return text
+
+
+def _fit_sentence(result) -> str:
+    f = result.fit
+    low, high = f.rmsea_ci90
+    if f.df == 0:
+        return ("The model is just-identified (0 degrees of freedom): it reproduces the observed covariances exactly, "
+                "so its fit could not be tested.")
+    if result.robust is not None:
+        r = result.robust
+        rl, rh = r.rmsea_robust_ci90
+        return (f"The {_test_phrase(r.method)} gave {CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
+                f"(scaling factor {r.scaling_factor:.3f}); robust CFI = {unit(r.cfi_robust)}, robust TLI = "
+                f"{unit(r.tli_robust)}, robust RMSEA = {unit(r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], "
+                f"SRMR = {unit(f.srmr)}.")
+    return (f"The model fit was {CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {unit(f.cfi)}, "
+            f"TLI = {unit(f.tli)}, RMSEA = {unit(f.rmsea)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}.")
+
+
 def methods_paragraph(result) -> str:
     if not result.converged or result.fit is None:
         return "The model did not converge, so no results are reported."
-    f = result.fit
-    n_items = len(result.observed)
-    lower = {r.variables[1] for r in result.estimates if r.kind == "loading" and r.variables[1] in result.latent}
-    higher = [f for f in result.latent if any(r.kind == "loading" and r.variables[0] == f and r.variables[1] in lower
-                                               for r in result.estimates)]
-    first = [f for f in result.latent if f not in higher]
-    correlated = any(r.kind == "factor_covariance" for r in result.estimates)
-    kind = ("correlated factors" if correlated else "factors") if len(first) > 1 else "factor"
-    structure = f"{len(first)} {kind} ({_list(first)})"
-    if higher:
-        structure += f" explained by {'a higher-order factor' if len(higher) == 1 else 'higher-order factors'} ({_list(higher)})"
-    loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed]
-    d = result.data
-    parts = []
-    estimator = _estimator_phrase(result)
-    sample = f"N = {result.n_obs}"
-    if d.rows_dropped and "full information" not in result.estimator:
-        sample += f"; {d.rows_dropped} of {d.rows_read} rows with missing answers were excluded listwise"
+    d = result.description
     groups = f" in {len(result.groups)} groups defined by {result.group_column}" if result.multigroup else ""
-    parts.append(
-        f"A confirmatory factor analysis with {structure} "
-        f"and {n_items} indicators was estimated{groups} by {estimator} ({sample})."
-    )
-    low, high = f.rmsea_ci90
-    if f.df == 0:
-        parts.append("The model is just-identified (0 degrees of freedom): it reproduces the observed covariances "
-                     "exactly, so its fit could not be tested.")
-    elif result.robust is not None:
-        r = result.robust
-        rl, rh = r.rmsea_robust_ci90
-        parts.append(
-            f"The {_test_phrase(r.method)} gave chi-square({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
-            f"(scaling factor {r.scaling_factor:.3f}); robust CFI = {unit(r.cfi_robust)}, robust TLI = {unit(r.tli_robust)}, "
-            f"robust RMSEA = {unit(r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], SRMR = {unit(f.srmr)}."
-        )
+    parts = []
+    if d is not None:
+        parts.append(f"A confirmatory factor analysis with {_structure(result, d)} was estimated{groups} by "
+                     f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
+        parts.append(_scale_sentence(d))
+        departures = _departures(d)
+        if departures:
+            parts.append(departures)
+        if d.invariant:
+            parts.append(f"Held equal across groups: {_list(list(d.invariant))}" + (
+                f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + ".")
     else:
-        parts.append(
-            f"The model fit was chi-square({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {unit(f.cfi)}, "
-            f"TLI = {unit(f.tli)}, RMSEA = {unit(f.rmsea)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}."
-        )
+        parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators was estimated{groups} by "
+                     f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
+    parts.append(_fit_sentence(result))
+    loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed]
     if loadings:
         parts.append(f"Standardized loadings ranged from {unit(min(loadings), 2)} to {unit(max(loadings), 2)}.")
     corr = [r.standardized for r in result.estimates if r.kind == "factor_covariance"]
     if corr and not result.multigroup:
         parts.append(f"Factor correlations ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}.")
-    if f.df > 0:
-        parts.append("Fit was judged against conventional guide values (e.g., CFI >= .95, RMSEA <= .06, SRMR <= .08; "
-                     "Hu & Bentler, 1999), which are conventions rather than strict criteria.")
+    if result.fit.df > 0:
+        parts.append("Fit was judged against conventional guide values (e.g., CFI \u2265 .95, RMSEA \u2264 .06, "
+                     "SRMR \u2264 .08; Hu & Bentler, 1999), which are conventions rather than strict criteria.")
     return " ".join(parts)

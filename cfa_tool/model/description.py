@@ -1,0 +1,133 @@
+"""What exactly was fitted, in the terms a methods section uses.
+
+A :class:`ModelDescription` lists every departure from a simple-structure model with
+correlated factors: cross-loadings, residual covariances, factors held uncorrelated,
+higher-order factors, how each factor got its scale, equal, fixed and bounded
+parameters, ordinal items, and what is held equal across groups.  It is built once
+from the specification and the parameter table, so that the methods paragraph (and
+any other view) describes the model fitted, not a generic one.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from cfa_tool.language.checks import exogenous_factors
+from cfa_tool.language.spec import Spec
+from cfa_tool.model.parameters import ParameterTable
+
+
+@dataclass(frozen=True)
+class FactorScale:
+    factor: str
+    method: str  # "marker", "variance", "effects", "fixed by the model" (a fix the model file states)
+    marker: str | None = None  # the indicator whose loading is fixed at 1, for marker scaling
+    below_higher_order: bool = False  # its variance parameter is a disturbance variance
+
+
+@dataclass(frozen=True)
+class ModelDescription:
+    first_order: tuple[str, ...]
+    higher_order: tuple[tuple[str, tuple[str, ...]], ...]  # (factor, the factors it explains)
+    indicators: tuple[str, ...]
+    cross_loadings: tuple[tuple[str, tuple[str, ...]], ...]  # (item, the factors it loads on)
+    residual_covariances: tuple[tuple[str, str], ...]
+    factor_covariances_added: tuple[tuple[str, str], ...]  # 'covary' between factors that are not otherwise correlated
+    uncorrelated: tuple[tuple[str, str], ...]  # factor pairs held uncorrelated
+    correlated_factors: bool  # first-order factors (without a higher-order factor) correlate freely
+    scales: tuple[FactorScale, ...]
+    # parameters are (kind, names, group) as the model file names them, e.g. ("loading", ("visual", "x2"), None)
+    equal: tuple[tuple[tuple, ...], ...]  # each tuple one constraint
+    fixed: tuple[tuple[tuple, float], ...]  # parameters the model file fixes (not for scaling)
+    bounds: tuple[tuple[tuple, float | None, float | None], ...]
+    ordinal: tuple[str, ...]
+    invariant: tuple[str, ...]  # classes held equal across groups
+    noninvariant: tuple[tuple, ...]  # parameters exempted
+
+    def to_dict(self) -> dict:
+        return {
+            "first_order_factors": list(self.first_order),
+            "higher_order_factors": [{"factor": f, "explains": list(lower)} for f, lower in self.higher_order],
+            "indicators": list(self.indicators),
+            "cross_loadings": [{"item": x, "factors": list(fs)} for x, fs in self.cross_loadings],
+            "residual_covariances": [list(p) for p in self.residual_covariances],
+            "factor_covariances_added": [list(p) for p in self.factor_covariances_added],
+            "uncorrelated_factors": [list(p) for p in self.uncorrelated],
+            "correlated_factors": self.correlated_factors,
+            "scales": [{"factor": s.factor, "method": s.method, "marker": s.marker} for s in self.scales],
+            "equal": [[_ref_dict(r) for r in e] for e in self.equal],
+            "fixed": [{**_ref_dict(r), "value": value} for r, value in self.fixed],
+            "bounds": [{**_ref_dict(r), "lower": lo, "upper": hi} for r, lo, hi in self.bounds],
+            "ordinal_items": list(self.ordinal),
+            "invariant": list(self.invariant),
+            "noninvariant": [_ref_dict(r) for r in self.noninvariant],
+        }
+
+
+def _ref_dict(ref: tuple) -> dict:
+    kind, names, group = ref
+    return {"kind": kind, "variables": list(names), "group": group}
+
+
+def _ref(ref) -> tuple:
+    return (ref.kind, tuple(ref.names), ref.group)
+
+
+def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
+    """The model as fitted: from the specification (what the file says) and the parameter table
+    (how the tool completed it: scales, defaults)."""
+    latent = set(spec.factor_names)
+    higher = tuple((f.name.text, tuple(i.text for i in f.indicators if i.text in latent))
+                   for f in spec.factors if any(i.text in latent for i in f.indicators))
+    first_order = tuple(f.name.text for f in spec.factors if any(i.text not in latent for i in f.indicators))
+    factors_of: dict[str, list[str]] = {}
+    for f in spec.factors:
+        for i in f.indicators:
+            if i.text not in latent:
+                factors_of.setdefault(i.text, []).append(f.name.text)
+    cross = tuple((x, tuple(fs)) for x, fs in factors_of.items() if len(fs) > 1)
+    residual = tuple((p.first.text, p.second.text) for p in spec.covary if p.first.text not in latent)
+    exo = set(exogenous_factors(spec))
+    added = tuple(p.key() for p in spec.covary if p.first.text in latent and not (p.first.text in exo and p.second.text in exo))
+    uncorrelated = tuple((p.first.text, p.second.text) for p in spec.uncorrelated)
+    exo_first = [f for f in first_order if f in exo]
+    correlated = len(exo_first) > 1
+    return ModelDescription(
+        first_order=first_order,
+        higher_order=higher,
+        indicators=spec.observed_names,
+        cross_loadings=cross,
+        residual_covariances=residual,
+        factor_covariances_added=added,
+        uncorrelated=uncorrelated,
+        correlated_factors=correlated,
+        scales=_scales(spec, table),
+        equal=tuple(tuple(_ref(r) for r in group) for group in spec.equal),
+        fixed=tuple((_ref(ref), setting.value) for setting in spec.fixed for ref in setting.refs),
+        bounds=tuple((_ref(ref), b.lower, b.upper) for b in spec.bounds for ref in b.refs),
+        ordinal=tuple(n.text for n in spec.ordinal),
+        invariant=tuple(spec.invariant),
+        noninvariant=tuple(_ref(r) for r in spec.noninvariant),
+    )
+
+
+def _scales(spec: Spec, table: ParameterTable) -> tuple[FactorScale, ...]:
+    """How each factor got its scale, read from the first group's parameters."""
+    out = []
+    below = {i.text for f in spec.factors for i in f.indicators if i.text in set(spec.factor_names)}
+    for name in spec.factor_names:
+        endogenous = name in below
+        own = [p for p in table.parameters if p.group == 0 and (
+            (p.kind == "loading" and p.variables[0] == name) or (p.kind == "factor_variance" and p.variables == (name,)))]
+        scale = [p for p in own if p.origin == "scale"]
+        if any(p.origin == "user" for p in own) and not scale:
+            out.append(FactorScale(name, "fixed by the model", None, endogenous))
+        elif any(p.kind == "factor_variance" for p in scale):
+            out.append(FactorScale(name, "variance", None, endogenous))
+        elif any(p.kind == "loading" and p.free for p in scale):
+            out.append(FactorScale(name, "effects", None, endogenous))
+        elif scale:
+            out.append(FactorScale(name, "marker", scale[0].variables[1], endogenous))
+        else:
+            out.append(FactorScale(name, spec.scaling_of(name), None, endogenous))
+    return tuple(out)
