@@ -203,7 +203,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     if ordinal_items:
         result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
         labels = tuple(g.label for g in result.groups) if group is not None else None
-        return _described(replace(result, warnings=tuple(notes) + result.warnings), spec, labels)
+        return _described(replace(result, warnings=tuple(notes) + result.warnings), spec, labels, ordinal_items)
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
     notes = missing_notes + notes
     groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
@@ -246,12 +246,13 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     return replace(fit_options, missing="full-information"), [note]
 
 
-def _described(result: FitResult, spec: Spec, groups: tuple[str, ...] | None) -> FitResult:
+def _described(result: FitResult, spec: Spec, groups: tuple[str, ...] | None, ordinal_items=()) -> FitResult:
     """The result with the description of exactly the model fitted (for the methods paragraph)."""
     from cfa_tool.model.description import describe
     from cfa_tool.model.parameters import build_parameter_table
 
-    return replace(result, description=describe(spec, build_parameter_table(spec, groups)))
+    ordinal = {x: 1 for x in ordinal_items} if groups is not None else None  # thresholds do not change the description
+    return replace(result, description=describe(spec, build_parameter_table(spec, groups, ordinal=ordinal)))
 
 
 def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: set[str], group: str | None,
