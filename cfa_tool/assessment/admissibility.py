@@ -1,39 +1,188 @@
-"""Warnings for estimates outside their admissible range (Heywood cases,
-Dillon, Kumar & Mulani 1987): negative variances, correlations beyond +/-1,
-standardized loadings above 1, a non-positive-definite factor covariance matrix."""
+"""Is the solution possible at all?  One admissibility assessment per solution.
+
+An estimate outside its admissible range (a Heywood case; Dillon, Kumar & Mulani 1987)
+makes a solution impossible for a population, whatever its fit indices say: negative
+variances, correlations beyond +/-1, factor or residual covariance matrices that are not
+positive definite, standardized loadings or R-squared above 1.  So are estimates held at
+a bound the model sets, a search that did not converge, and a model that the data
+cannot identify empirically (an information matrix that is singular in practice).
+Each problem is reported with the parameters involved, the value, a plain-words
+explanation and what the researcher can try; every view shows them first.
+"""
 
 from __future__ import annotations
+
+import enum
+from dataclasses import dataclass
 
 import numpy as np
 
 from cfa_tool.model.implied import ModelMatrices
 
 
-def admissibility_warnings(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[str, ...]) -> list[str]:
-    out: list[str] = []
+class ProblemKind(enum.Enum):
+    NOT_CONVERGED = "not converged"
+    NEGATIVE_RESIDUAL_VARIANCE = "negative residual variance"
+    NEGATIVE_FACTOR_VARIANCE = "negative factor variance"
+    FACTOR_CORRELATION_BEYOND_ONE = "factor correlation beyond +/-1"
+    RESIDUAL_CORRELATION_BEYOND_ONE = "residual correlation beyond +/-1"
+    FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE = "factor covariance matrix not positive definite"
+    RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE = "residual covariance matrix not positive definite"
+    STANDARDIZED_LOADING_ABOVE_ONE = "standardized loading above 1"
+    ON_BOUND = "estimate on a bound"
+    EMPIRICALLY_UNDERIDENTIFIED = "empirically under-identified"
+
+
+@dataclass(frozen=True)
+class Problem:
+    kind: ProblemKind
+    parameters: tuple[str, ...]  # labels such as 'variance(x9)' (with ' in group g' when there are groups)
+    value: float | None
+    explanation: str
+    advice: str
+    group: str | None = None
+
+    def to_dict(self) -> dict:
+        value = None if self.value is None or not np.isfinite(self.value) else float(self.value)
+        return {"kind": self.kind.value, "parameters": list(self.parameters), "value": value, "group": self.group,
+                "explanation": self.explanation, "advice": self.advice}
+
+    def one_line(self) -> str:
+        where = f" (group {self.group})" if self.group is not None else ""
+        return f"{self.explanation}{where} {self.advice}"
+
+
+HEYWOOD_ADVICE = ("Look for what the model leaves out near it (a residual covariance or cross-loading the modification "
+                  "indices point to), for outlying rows, and whether the sample is small for the model; do not simply fix "
+                  "the value at a boundary to hide the problem.")
+
+
+def _fmt(value: float) -> str:
+    return f"{value:.3f}" if abs(value) >= 0.001 else f"{value:.3g}"
+
+
+def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[str, ...],
+                    group: str | None = None, se_of: dict[str, float] | None = None) -> list[Problem]:
+    """Problems visible in one group's model matrices (see the module's list).  ``se_of`` maps
+    'variance(x)' labels to standard errors, to say whether a negative variance could be sampling error."""
+    out: list[Problem] = []
+    se_of = se_of or {}
+    sigma = mats.implied_covariance()
+    total = np.diag(sigma)
     for i, x in enumerate(observed):
-        if mats.T[i, i] < 0:
-            out.append(
-                f"Heywood case: the residual variance of '{x}' is negative ({mats.T[i, i]:.4g}); the model may be misspecified, "
-                f"the sample too small, or '{x}' nearly redundant with its factor"
-            )
+        theta = mats.T[i, i]
+        if theta < 0:
+            r2 = 1.0 - theta / total[i] if total[i] > 0 else float("nan")
+            label = f"variance({x})"
+            se = se_of.get(label)
+            chance = (f" Its standard error is {_fmt(se)}, so it is {'not ' if theta / se > -1.96 else ''}clearly below "
+                      f"zero (z = {theta / se:.2f}).") if se and np.isfinite(se) and se > 0 else ""
+            out.append(Problem(
+                ProblemKind.NEGATIVE_RESIDUAL_VARIANCE, (label,), float(theta),
+                f"The residual (error) variance of {x} is negative ({_fmt(theta)}), so the factors would explain more than "
+                f"all of its variance (R-squared {r2:.3f}): impossible for real data.{chance}",
+                HEYWOOD_ADVICE, group))
     for j, f in enumerate(latent):
         if mats.P[j, j] < 0:
-            out.append(f"Heywood case: the variance of factor '{f}' is negative ({mats.P[j, j]:.4g})")
+            out.append(Problem(
+                ProblemKind.NEGATIVE_FACTOR_VARIANCE, (f"variance({f})",), float(mats.P[j, j]),
+                f"The variance of factor {f} is negative ({_fmt(mats.P[j, j])}): impossible for a real trait.",
+                "Check that its indicators measure one thing (their correlations should be clearly positive after "
+                "reversing reverse-keyed items) and that the factor has enough indicators.", group))
     phi = mats.latent_covariance()
     d = np.diag(phi)
-    if np.all(d > 0):
+    if len(latent) > 1 and np.all(d > 0):
         corr = phi / np.sqrt(np.outer(d, d))
         for i in range(len(latent)):
             for j in range(i):
                 if abs(corr[i, j]) > 1.0:
-                    out.append(f"the correlation of factors '{latent[j]}' and '{latent[i]}' is {corr[i, j]:.3f}, beyond +/-1")
-        if len(latent) > 1 and np.linalg.eigvalsh(phi)[0] < 0:
-            out.append("the factor covariance matrix is not positive definite")
-    sigma = mats.implied_covariance()
-    sd_obs = np.sqrt(np.clip(np.diag(sigma), 1e-300, None))
+                    out.append(Problem(
+                        ProblemKind.FACTOR_CORRELATION_BEYOND_ONE, (f"covariance({latent[j]}, {latent[i]})",),
+                        float(corr[i, j]),
+                        f"The correlation of factors {latent[j]} and {latent[i]} is {corr[i, j]:.3f}, beyond +/-1: impossible.",
+                        "The two factors are not distinct in these data: consider one factor for both items sets, or "
+                        "look for cross-loadings and residual covariances that the model leaves out.", group))
+        if not any(p.kind is ProblemKind.FACTOR_CORRELATION_BEYOND_ONE for p in out) and np.linalg.eigvalsh(phi)[0] < 0:
+            out.append(Problem(
+                ProblemKind.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(f"variance({f})" for f in latent),
+                float(np.linalg.eigvalsh(corr)[0]),
+                "The factor covariance matrix is not positive definite (its smallest eigenvalue is below zero): some "
+                "combination of the factors would have a negative variance.",
+                "Some factors are nearly linear combinations of others; look at the factor correlations close to 1 in size "
+                "and consider merging factors.", group))
+    t_diag = np.diag(mats.T)
+    off = [(i, j) for i in range(len(observed)) for j in range(i) if mats.T[i, j] != 0]
+    for i, j in off:
+        if t_diag[i] > 0 and t_diag[j] > 0:
+            r = mats.T[i, j] / np.sqrt(t_diag[i] * t_diag[j])
+            if abs(r) > 1.0:
+                out.append(Problem(
+                    ProblemKind.RESIDUAL_CORRELATION_BEYOND_ONE, (f"covariance({observed[j]}, {observed[i]})",), float(r),
+                    f"The residual correlation of {observed[j]} and {observed[i]} is {r:.3f}, beyond +/-1: impossible.",
+                    "The residual covariance leaves the two items' residuals more alike than identical; remove it or "
+                    "model what the two items share as a factor.", group))
+    if off and np.all(t_diag > 0) and not any(p.kind is ProblemKind.RESIDUAL_CORRELATION_BEYOND_ONE for p in out):
+        scale = 1.0 / np.sqrt(t_diag)
+        if np.linalg.eigvalsh(mats.T * np.outer(scale, scale))[0] < -1e-10:
+            out.append(Problem(
+                ProblemKind.RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(f"covariance({observed[j]}, {observed[i]})"
+                                                                               for i, j in off), None,
+                "The residual covariance matrix is not positive definite: the residual covariances together imply a "
+                "negative variance for some combination of the items.",
+                "Too many or too large residual covariances: remove those the theory does not call for.", group))
+    sd_obs = np.sqrt(np.clip(total, 1e-300, None))
     sd_lat = np.sqrt(np.clip(d, 1e-300, None))
     std = mats.L * sd_lat[None, :] / sd_obs[:, None]
+    negative = {i for i, x in enumerate(observed) if mats.T[i, i] < 0}
     for i, j in zip(*np.nonzero(np.abs(std) > 1.0)):
-        out.append(f"the standardized loading of '{observed[i]}' on '{latent[j]}' is {std[i, j]:.3f}, above 1 in size")
+        if i in negative:  # the same problem as the negative residual variance, already reported
+            continue
+        out.append(Problem(
+            ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, (f"loading({latent[j]}, {observed[i]})",), float(std[i, j]),
+            f"The standardized loading of {observed[i]} on {latent[j]} is {std[i, j]:.3f}, above 1 in size.",
+            "With a cross-loading or correlated factors this can be legitimate; otherwise treat it as "
+            "a Heywood case. " + HEYWOOD_ADVICE, group))
     return out
+
+
+def bound_problems(labels: tuple[str, ...], theta: np.ndarray, lower: np.ndarray, upper: np.ndarray) -> list[Problem]:
+    """Free parameters held at a bound that the model sets: the unrestricted estimate lies beyond it."""
+    out = []
+    for k, label in enumerate(labels):
+        for limit, word in ((lower[k], "lower"), (upper[k], "upper")):
+            if np.isfinite(limit) and abs(theta[k] - limit) <= 1e-8 * max(1.0, abs(limit)):
+                out.append(Problem(
+                    ProblemKind.ON_BOUND, (label,), float(theta[k]),
+                    f"{label} is held at its {word} bound ({limit:g}): without the bound the estimate would lie beyond it, "
+                    f"so the reported fit and standard errors describe a restricted solution.",
+                    "Report the bound; the standard errors and tests near a bound are not reliable (the estimate's "
+                    "sampling distribution is cut off there).", None))
+    return out
+
+
+def identification_problems(labels: tuple[str, ...], se: np.ndarray, estimates: np.ndarray) -> list[Problem]:
+    """Empirical under-identification: standard errors so large relative to the estimates that the data
+    barely determine those parameters (Kenny 1979 describes the typical cases: a factor with two indicators
+    whose correlation with other factors is near zero, or a loading near zero on a factor with three)."""
+    ratio = np.abs(se) / np.maximum(np.abs(estimates), 1e-8)
+    weak = [k for k in range(len(labels)) if np.isfinite(ratio[k]) and ratio[k] > 100 and se[k] > 10]
+    if not weak:
+        return []
+    return [Problem(
+        ProblemKind.EMPIRICALLY_UNDERIDENTIFIED, tuple(labels[k] for k in weak), float(np.max(se[weak])),
+        "The data barely determine " + ", ".join(labels[k] for k in weak[:5]) + (" and others" if len(weak) > 5 else "")
+        + ": their standard errors are huge, so the model is close to not identified with these data.",
+        "Check factors with two indicators (they need a clear correlation with another factor) and loadings near zero; "
+        "fix or drop what the data cannot inform.", None)]
+
+
+def not_converged(message: str, max_iterations: int) -> Problem:
+    return Problem(ProblemKind.NOT_CONVERGED, (), None,
+                   f"The estimation did not converge ({message}); no estimate, fit index or test of it can be interpreted.",
+                   f"Check the model for the problems named, give start values closer to the expected solution, or raise "
+                   f"the iteration limit (now {max_iterations}).")
+
+
+def admissibility_warnings(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[str, ...]) -> list[str]:
+    """The same assessment as one line per problem (for notes)."""
+    return [p.explanation for p in matrix_problems(mats, observed, latent)]
