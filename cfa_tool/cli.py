@@ -19,8 +19,30 @@ PROG = "cfa-tool"
 
 
 class _Parser(argparse.ArgumentParser):
+    """One line for every mistake, starting with the program's name (control characters escaped),
+    and an error for an option given twice that takes one value (argparse would keep the last)."""
+
     def error(self, message: str):  # one line, not the usage block
-        self.exit(2, f"{self.prog}: {message} (see '{self.prog} --help')\n")
+        command = self.prog[len(PROG):].strip()
+        where = f"{command}: " if command else ""
+        self.exit(2, f"{PROG}: {where}{printable(message)} (see '{self.prog} --help')\n")
+
+    def add_argument(self, *args, **kwargs):
+        if kwargs.get("action") is None and args and str(args[0]).startswith("--"):
+            kwargs["action"] = _Once
+        return super().add_argument(*args, **kwargs)
+
+
+class _Once(argparse.Action):
+    """Store one value; the same option a second time is an error, never silently the last one."""
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        seen = namespace.__dict__.setdefault("_given_options", set())
+        if self.dest in seen:
+            parser.error(f"{option_string} is given twice; give it once"
+                         + (" (several values go in one comma-separated list)" if self.dest == "missing_codes" else ""))
+        seen.add(self.dest)
+        setattr(namespace, self.dest, values)
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -115,10 +137,12 @@ def _add_data_options(p: argparse.ArgumentParser) -> None:
 
 
 def _codes(text: str) -> tuple[float, ...]:
-    try:
-        return tuple(float(t) for t in text.split(",") if t.strip())
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"missing codes must be numbers separated by commas, not '{text}'") from None
+    from cfa_tool.numbers import number
+
+    codes = [number(t) for t in text.split(",") if t.strip()]
+    if not codes or any(c is None for c in codes):
+        raise argparse.ArgumentTypeError(f"missing codes must be numbers separated by commas, not '{text}'")
+    return tuple(codes)
 
 
 def _add_group_options(p: argparse.ArgumentParser, required: bool) -> None:
@@ -332,7 +356,7 @@ def _simulation_command(args: argparse.Namespace) -> int:
 
         simulated = simulate(read_model_file(args.model), args.n, args.seed, args.categories, args.missing)
         frame = simulated.frame
-        if args.json != "-":
+        if not args._stdout_taken:
             W.render_population(simulated, _console())
         if args.json:
             from cfa_tool.reporting.json_report import to_json
@@ -426,18 +450,23 @@ def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     diagram = getattr(args, "diagram", None)
     if diagram and diagram != "-" and Path(diagram).suffix.lower() not in DIAGRAM_SUFFIXES:
         raise OptionError(f"--diagram: '{diagram}' must end in .svg or .png (the two formats the diagram is written in)")
+    output = getattr(args, "output", None)
+    if output and output != "-" and Path(output).suffix.lower() != ".csv":
+        raise OptionError(f"--output: the simulated rows are written as CSV; give a file name ending in .csv, not "
+                          f"'{printable(output)}'")
     outputs = [(option, getattr(args, attr, None)) for option, attr in REPORT_FILES]
     targets = check_outputs(outputs, inputs, [("--tables", getattr(args, "tables", None))])
     if diagram and diagram.lower().endswith(".png"):
         _png_converter()
     args._targets = targets
+    args._stdout_taken = any(t.is_stdout for t in targets.values())
     return targets
 
 
 def _say(args: argparse.Namespace, text: str) -> None:
-    """A line about files written: on standard output, or on standard error when standard
-    output carries the JSON result."""
-    print(text, file=sys.stderr if getattr(args, "json", None) == "-" else sys.stdout)
+    """A line about files written: on standard output, or on standard error when standard output
+    carries one of the outputs (JSON, a report or the simulated rows)."""
+    print(printable(text), file=sys.stderr if getattr(args, "_stdout_taken", False) else sys.stdout)
 
 
 def _report_files(args: argparse.Namespace, result) -> list[tuple[str, object, str]]:
@@ -507,7 +536,7 @@ def _emit(args: argparse.Namespace, result, render) -> int:
     tables = _table_files(args, result)
     if tables:
         check_table_folder("--tables", args.tables, tables, _inputs(args))
-    if args.json != "-":  # otherwise standard output carries the JSON alone
+    if not args._stdout_taken:  # otherwise standard output carries that output alone
         render(result, _console())
     for option, content, message in files:
         write_file(args._targets[option], content)

@@ -57,8 +57,14 @@ def input_bytes(path: str | Path, what: str, error: type[UserInputError], limit:
     if stat.S_ISREG(st.st_mode) and st.st_size > limit:
         raise error(f"{what} '{_short(path)}' is {st.st_size:,} bytes; a {what} is at most {limit:,} bytes")
     try:
-        with open(path, "rb") as handle:
-            data = handle.read(limit + 1)
+        if stat.S_ISFIFO(st.st_mode):
+            data = _read_pipe(path, limit)
+            if not data:
+                raise error(f"no program wrote to the named pipe '{_short(path)}' (given as {what}); start the writer "
+                            f"first")
+        else:
+            with open(path, "rb") as handle:
+                data = handle.read(limit + 1)
     except PermissionError:
         raise error(f"{what} '{_short(path)}' cannot be read (permission denied)") from None
     except OSError as exc:
@@ -66,6 +72,17 @@ def input_bytes(path: str | Path, what: str, error: type[UserInputError], limit:
     if len(data) > limit:
         raise error(f"{what} '{_short(path)}' holds more than {limit:,} bytes; a {what} is at most {limit:,} bytes")
     return data
+
+
+def _read_pipe(path: Path, limit: int) -> bytes:
+    """A named pipe is opened without waiting for a writer (a pipe nobody writes to reads as empty,
+    instead of blocking the run forever), then read to its end."""
+    import fcntl
+
+    fd = os.open(path, os.O_RDONLY | os.O_NONBLOCK)
+    fcntl.fcntl(fd, fcntl.F_SETFL, fcntl.fcntl(fd, fcntl.F_GETFL) & ~os.O_NONBLOCK)
+    with os.fdopen(fd, "rb") as handle:
+        return handle.read(limit + 1)
 
 
 def utf16_text(raw: bytes) -> str | None:

@@ -22,6 +22,7 @@ Rules (the contributor guide's "never lose a file"):
 
 from __future__ import annotations
 
+import errno
 import hashlib
 import json
 import os
@@ -35,6 +36,7 @@ from cfa_tool.errors import OptionError
 
 STDOUT = "-"
 MANIFEST = ".cfa-tool-tables.json"
+TABLE_SUFFIXES = (".csv", ".tex")  # what a table folder receives
 _MANIFEST_MARK = "cfa-tool table folder"
 
 #: Filesystems whose files are the kernel's, not the user's.
@@ -52,6 +54,7 @@ class Target:
     option: str  # e.g. '--json'
     given: str
     direct: bool  # '-' or a special file: written in place, never renamed over
+    pipe: int | None = None  # a named pipe's descriptor, opened (and its reader found) before the work
 
     @property
     def is_stdout(self) -> bool:
@@ -97,10 +100,23 @@ def shown(path: str | Path) -> str:
     return text if len(text) <= 200 else text[:120] + "..." + text[-60:]
 
 
+def _is_standard_output(path: Path) -> bool:
+    """Whether ``path`` is the very file standard output writes to (/dev/stdout, /proc/self/fd/1, or a
+    file the shell redirected standard output to)."""
+    try:
+        here = os.fstat(sys.stdout.fileno())
+        there = path.stat()
+    except (OSError, ValueError, AttributeError):
+        return False
+    return (here.st_dev, here.st_ino) == (there.st_dev, there.st_ino)
+
+
 def check_target(option: str, given: str) -> Target:
     """Check one output path before any work is done (see the module's rules)."""
     if given == STDOUT:
         return Target(option, given, True)
+    if given and _is_standard_output(Path(given)):
+        return Target(option, STDOUT, True)
     if not given or "\x00" in given:
         raise OptionError(f"{option}: the file name is empty or holds a NUL character")
     path = Path(given)
@@ -116,6 +132,8 @@ def check_target(option: str, given: str) -> Target:
         if stat.S_ISCHR(st.st_mode) or stat.S_ISFIFO(st.st_mode):
             if not os.access(path, os.W_OK):
                 raise OptionError(f"{option}: '{shown(given)}' cannot be written (permission denied)")
+            if stat.S_ISFIFO(st.st_mode):
+                return Target(option, given, True, _open_pipe(option, given))
             return Target(option, given, True)
         if not stat.S_ISREG(st.st_mode):
             raise OptionError(f"{option}: '{shown(given)}' is not a regular file; give a file name")
@@ -134,6 +152,22 @@ def check_target(option: str, given: str) -> Target:
     if len(real.name.encode("utf-8", "surrogateescape")) > 255:
         raise OptionError(f"{option}: the file name '{shown(real.name)}' is longer than 255 bytes")
     return Target(option, given, False)
+
+
+def _open_pipe(option: str, given: str) -> int:
+    """A named pipe nobody reads would block the run forever: it is opened at once without waiting
+    (an error when no reader is there) and kept open for the writing, so the reader sees no end early."""
+    import fcntl
+
+    try:
+        fd = os.open(given, os.O_WRONLY | os.O_NONBLOCK)
+    except OSError as exc:
+        if exc.errno == errno.ENXIO:
+            raise OptionError(f"{option}: no program is reading from the named pipe '{shown(given)}'; start the reader "
+                              f"first") from None
+        raise OptionError(f"{option}: cannot open the named pipe '{shown(given)}' ({exc.strerror or exc})") from None
+    fcntl.fcntl(fd, fcntl.F_SETFL, fcntl.fcntl(fd, fcntl.F_GETFL) & ~os.O_NONBLOCK)
+    return fd
 
 
 def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path | None],
@@ -172,10 +206,20 @@ def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path
         if folder is None:
             continue
         check_folder(option, folder)
+        inside = os.path.realpath(folder)
+        for other, target in targets.items():
+            if target.is_stdout or target.direct:
+                continue
+            real = Path(os.path.realpath(target.given))
+            if str(real.parent) == inside and (real.suffix.lower() in TABLE_SUFFIXES or real.name == MANIFEST):
+                raise OptionError(f"{other} writes '{shown(target.given)}' into the {option} folder, where the tables "
+                                  f"go; give it another name or place")
     return targets
 
 
 def check_folder(option: str, folder: str) -> None:
+    if not folder or "\x00" in folder:
+        raise OptionError(f"{option}: the folder name is empty or holds a NUL character")
     path = Path(folder)
     if path.exists() and not path.is_dir():
         raise OptionError(f"{option}: '{shown(folder)}' is a file; give a folder for the tables")
@@ -201,7 +245,7 @@ def write_file(target: Target | str | Path, content: str | bytes) -> None:
         return
     if target.direct:
         try:
-            with open(target.given, "wb") as handle:
+            with (os.fdopen(target.pipe, "wb") if target.pipe is not None else open(target.given, "wb")) as handle:
                 handle.write(data)
         except OSError as exc:
             raise OptionError(f"{target.option}: cannot write '{shown(target.given)}' ({exc.strerror or exc})") from None
@@ -215,7 +259,7 @@ def _replace_atomically(real: Path, data: bytes, option: str) -> None:
         mode = stat.S_IMODE(real.stat().st_mode)
     except FileNotFoundError:
         mode = None
-    tmp = folder / f".{real.name[:200]}.{secrets.token_hex(4)}.tmp"
+    tmp = folder / f".cfa-tool-{secrets.token_hex(6)}.tmp"  # short: the target's name may use all 255 bytes
     try:
         fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666 if mode is None else 0o600)
     except OSError as exc:

@@ -1,0 +1,32 @@
+"""Reading numbers written as text, strictly.
+
+Python's ``float`` and ``int`` accept more than a number as people write it: underscores
+between digits ('3_3' is 33), superscript and other Unicode digits, surrounding spaces
+and words such as 'infinity'.  In a data file or a model file those are typing errors,
+not numbers, so every reader uses :func:`number` instead.
+"""
+
+from __future__ import annotations
+
+import re
+
+_NUMBER = re.compile(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?")
+_WHOLE = re.compile(r"[+-]?[0-9]+")
+
+
+def number(text: str, decimal_comma: bool = False) -> float | None:
+    """The number that ``text`` writes in plain ASCII digits (an optional sign, digits with one
+    decimal point, an optional exponent), or None.  With ``decimal_comma`` a comma is the decimal
+    point.  Infinite results (1e400) are returned as infinities for the caller to reject."""
+    text = text.strip()
+    if decimal_comma:
+        text = text.replace(",", ".", 1) if text.count(",") == 1 and "." not in text else text
+    if not _NUMBER.fullmatch(text):
+        return None
+    return float(text)
+
+
+def whole_number(text: str) -> int | None:
+    """A whole number in plain ASCII digits, or None."""
+    text = text.strip()
+    return int(text) if _WHOLE.fullmatch(text) and len(text) <= 30 else None
