@@ -9,7 +9,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.groups import split_moments
+from cfa_tool.data.groups import label_notes, split_moments
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
 from cfa_tool.data.filters import apply_filters, parse_filter
@@ -109,7 +109,19 @@ def read_inputs(model: str | Path | Spec, data: pd.DataFrame | str | Path, sheet
     return spec, loaded.frame, loaded.source
 
 
+def keep_option(keep) -> list[str]:
+    """Row filters: one filter as text, or a list of them."""
+    if keep is None:
+        return []
+    if isinstance(keep, str):
+        return [keep]
+    if not isinstance(keep, (list, tuple)):
+        raise OptionError(f"keep must be a row filter (text) or a list of them, not {type(keep).__name__}")
+    return list(keep)
+
+
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=()) -> tuple[Spec, LoadedData, list[str]]:
+    keep = keep_option(keep)
     spec = load_spec(model)
     loaded = load_data(data, sheet, missing_codes)
     frame = loaded.frame
@@ -136,10 +148,12 @@ def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None 
         return [(None, sample_moments(frame, spec.observed_names, source, missing=missing))], notes
     _check_group_column(spec, group)
     groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing)
-    return groups, _no_group_notes(no_group, group)
+    return groups, _no_group_notes(no_group, group) + label_notes(frame, group)
 
 
 def _check_group_column(spec: Spec, group: str) -> None:
+    if not isinstance(group, str):
+        raise OptionError(f"the group column must be given by its name (text), not {type(group).__name__}")
     if group in spec.observed_names:
         raise OptionError(f"'{group}' is an indicator in the model and cannot also be the group column")
 
@@ -305,11 +319,16 @@ def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, ref
     from cfa_tool.data.groups import split_ordinal_moments
 
     groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group)
-    return groups, _no_group_notes(no_group, group)
+    return groups, _no_group_notes(no_group, group) + label_notes(frame, group)
 
 
 def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
     items = {n.text for n in spec.ordinal}
+    if ordinal is not None and not isinstance(ordinal, str) and not (
+            isinstance(ordinal, (list, tuple, set)) and all(isinstance(x, str) for x in ordinal)):
+        raise OptionError(f"ordinal must be 'all' or a list of item names, not {type(ordinal).__name__}")
+    if isinstance(ordinal, str) and ordinal != "all" and ordinal.strip() in ("", ","):
+        raise OptionError("ordinal names no items: give 'all' or item names")
     if ordinal == "all":
         items |= set(spec.observed_names)
     elif ordinal:
@@ -349,16 +368,20 @@ def make_options(options: dict) -> FitOptions:
         raise OptionError(f"unknown option: {exc}") from None
 
 
-def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None,
-          **read_options) -> CheckResult:
+def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
+          sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
+          reference_group: str | None = None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
     are complete, how many have gaps (used by full-information ML, the default) and each item's
     coverage."""
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
+    read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep}
     if summary_source(data):
         refuse_row_options(f"'{data}'", group=group, **read_options)
+        if reference_group is not None:
+            raise OptionError("a reference group needs groups, and summary statistics describe one group")
         spec = load_spec(model)
         moments, _ = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
@@ -367,7 +390,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                            {name: 1.0 for name in spec.observed_names}, None)
     spec, frame, source = read_inputs(model, data, **read_options)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
-    groups, _ = moments_for(spec, frame, source, group, missing=options.missing)
+    groups, _ = moments_for(spec, frame, source, group, reference_group, missing=options.missing)
     labels = tuple(label for label, _ in groups) if group is not None else None
     check_counting_rule(spec, build_parameter_table(spec, labels, mean_structure=options.missing == "full-information"))
     answered = frame[list(spec.observed_names)].notna()

@@ -154,21 +154,32 @@ def test_json_to_a_hard_link_of_the_model_is_refused(corpus, capsys):
 
 def test_named_pipe_and_character_device_are_written_in_place(corpus, capsys):
     import os
-    import threading
 
     fifo = corpus / "pipe"
     os.mkfifo(fifo)
-    received = []
-    reader = threading.Thread(target=lambda: received.append(fifo.read_text()))
-    reader.start()
     code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "pipe"], capsys)
-    reader.join(timeout=30)
+    assert code == 2 and "no program is reading from the named pipe 'pipe'" in err  # instead of waiting forever
+    reader = os.open(fifo, os.O_RDONLY | os.O_NONBLOCK)  # a reader first (the JSON fits the pipe's buffer)
+    try:
+        code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "pipe"], capsys)
+        received = os.read(reader, 1 << 20).decode()
+    finally:
+        os.close(reader)
     assert code == 0, err
-    assert '"converged": true' in received[0]
+    assert '"converged": true' in received
     assert fifo.is_fifo()  # never renamed over
     code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "/dev/null"], capsys)
     assert code == 0, err
     assert Path("/dev/null").is_char_device()
+
+
+def test_a_named_pipe_without_a_writer_as_data(corpus, capsys):
+    import os
+
+    os.mkfifo(corpus / "data" / "pipe.csv")
+    before = _snapshot(corpus)
+    code, _, err = _run(["fit", "models/good.cfa", "--data", "data/pipe.csv"], capsys)
+    _check(code, err, 2, ["no program wrote to the named pipe 'data/pipe.csv'"], before, corpus)
 
 
 def test_json_to_standard_output_still_writes_the_other_reports(corpus, capsys):

@@ -10,9 +10,13 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 
+import numpy as np
 import pandas as pd
 
-from cfa_tool.errors import DataError, OptionError
+from cfa_tool.data.labels import label_text
+from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.numbers import number
+from cfa_tool.suggest import close_names
 
 _PATTERN = re.compile(r'^\s*(?:"(?P<quoted>[^"]+)"|(?P<plain>[^\s=!<>"]+))\s*(?P<op><=|>=|!=|==|=|<|>)\s*(?P<value>.+?)\s*$')
 
@@ -29,41 +33,46 @@ class RowFilter:
 
 
 def parse_filter(text: str) -> RowFilter:
+    if not isinstance(text, str):
+        raise OptionError(f"a row filter is text such as 'district = north', not {type(text).__name__}")
     match = _PATTERN.match(text)
     if not match:
-        raise OptionError(f"cannot read the row filter '{text}'; write COLUMN OPERATOR VALUE, e.g. 'district = north' or 'age >= 18'")
+        raise OptionError(f"cannot read the row filter '{printable(text)}'; write COLUMN OPERATOR VALUE, e.g. "
+                          f"'district = north' or 'age >= 18'")
     column = match.group("quoted") or match.group("plain")
     op = "=" if match.group("op") == "==" else match.group("op")
     raw = match.group("value")
+    if raw[:1] in "=!<>":
+        raise OptionError(f"row filter '{printable(text)}': unknown operator '{match.group('op')}{raw[0]}'; the "
+                          f"operators are = != < <= > >=")
     if len(raw) >= 2 and raw[0] == raw[-1] and raw[0] in "\"'":
         value: object = raw[1:-1]
     else:
-        try:
-            value = float(raw)
-        except ValueError:
-            value = raw
+        parsed = number(raw)
+        value = parsed if parsed is not None else raw
     return RowFilter(column, op, value, text.strip())
 
 
 def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str) -> tuple[pd.DataFrame, list[str]]:
-    """Keep the rows that meet every filter; notes say how many each filter left out."""
+    """Keep the rows that meet every filter; notes say how many each filter left out.  Text is compared
+    as labels are read everywhere (spaces at the ends and Unicode forms ignored)."""
     notes = []
     for f in filters:
         if f.column not in frame.columns:
-            import difflib
-
-            guess = difflib.get_close_matches(f.column, [str(c) for c in frame.columns], n=1)
+            guess = close_names(f.column, [str(c) for c in frame.columns])
             hint = f"; did you mean '{guess[0]}'?" if guess else ""
-            raise OptionError(f"row filter '{f}': {source} has no column '{f.column}'{hint}")
+            raise OptionError(f"row filter '{printable(f)}': {source} has no column '{printable(f.column)}'{hint}")
         column = frame[f.column]
-        numeric = pd.to_numeric(column, errors="coerce")
+        numeric = pd.to_numeric(column, errors="coerce") if column.dtype.kind in "iuf" else \
+            column.map(lambda v: np.nan if pd.isna(v) else _number_or_nan(v))
         if isinstance(f.value, float) and numeric.notna().sum() == column.notna().sum():
             values, target = numeric, f.value
         else:
             if f.operator not in ("=", "!="):
-                raise OptionError(f"row filter '{f}': '{f.column}' holds text, which can only be compared with = or !=")
-            values = column.map(lambda v: None if pd.isna(v) else _as_text(v))
-            target = _as_text(f.value)
+                raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds text, which can only be "
+                                  f"compared with = or !=")
+            values = column.map(lambda v: None if pd.isna(v) else label_text(v))
+            target = label_text(f.value)
         keep = {
             "=": values == target, "!=": values != target, "<": values < target, "<=": values <= target,
             ">": values > target, ">=": values >= target,
@@ -72,11 +81,12 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str) ->
         frame = frame.loc[keep.to_numpy()]
         notes.append(f"row filter '{f}' kept {len(frame)} of {before} rows")
         if len(frame) == 0:
-            raise DataError(f"{source}: no row is left after the row filter '{f}'")
+            raise DataError(f"{source}: no row is left after the row filter '{printable(f)}'")
     return frame, notes
 
 
-def _as_text(value) -> str:
-    if isinstance(value, float) and value.is_integer():
-        return str(int(value))
-    return str(value)
+def _number_or_nan(value) -> float:
+    if isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(value, bool):
+        return float(value)
+    parsed = number(str(value))
+    return np.nan if parsed is None else parsed

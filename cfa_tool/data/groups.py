@@ -2,22 +2,31 @@
 
 from __future__ import annotations
 
-import difflib
-
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.labels import label_text, merged_labels
+from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, sample_moments
-from cfa_tool.errors import DataError, OptionError
+from cfa_tool.errors import DataError, OptionError, printable
+
+
+MAX_GROUPS = 100  # a multi-group fit estimates every parameter in each group
 
 
 def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str | None = None) -> list[str]:
+    if not isinstance(column, str):
+        raise OptionError(f"the group column must be given by its name (text), not {type(column).__name__}")
     if column not in frame.columns:
-        guess = difflib.get_close_matches(column, [str(c) for c in frame.columns], n=1)
+        guess = close_names(column, [str(c) for c in frame.columns])
         hint = f"; did you mean '{guess[0]}'?" if guess else ""
-        raise OptionError(f"{source}: there is no group column '{column}'{hint}")
+        raise OptionError(f"{source}: there is no group column '{printable(column)}'{hint}")
     values = frame[column].dropna()
     labels = sorted({_label(v) for v in values})
+    if len(labels) > MAX_GROUPS:
+        raise OptionError(f"{source}: the group column '{printable(column)}' has {len(labels):,} different values; a "
+                          f"multi-group fit estimates the model in each group, at most {MAX_GROUPS} of them (is it the "
+                          f"right column? an identifier of classes or persons is not a grouping for invariance)")
     if len(labels) < 2:
         only = f" ('{labels[0]}')" if labels else ""
         raise DataError(f"{source}: the group column '{column}' has only {len(labels)} group{only}; a multi-group analysis needs at least two")
@@ -29,10 +38,14 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
     return labels
 
 
-def _label(value) -> str:
-    if isinstance(value, float) and value.is_integer():
-        return str(int(value))
-    return str(value)
+_label = label_text
+
+
+def label_notes(frame: pd.DataFrame, column: str) -> list[str]:
+    """Notes on group labels that differed only by spaces at their ends or Unicode form and were read as one."""
+    return [f"in the group column '{printable(column)}', {' and '.join(repr(printable(t)) for t in texts)} were read as "
+            f"one group '{printable(label)}' (spaces at the ends and Unicode forms are ignored)"
+            for label, texts in merged_labels(frame[column].dropna())]
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

@@ -2,8 +2,7 @@
 
 from __future__ import annotations
 
-import difflib
-
+from cfa_tool.suggest import close_names
 from cfa_tool.errors import ModelError
 from cfa_tool.language.spec import Spec
 
@@ -23,7 +22,7 @@ def check_columns(spec: Spec, columns: list[str], data_source: str) -> None:
     for name in spec.observed_names:
         if name not in available:
             loc = spec.first_mention(name)
-            guess = difflib.get_close_matches(name, columns, n=1, cutoff=0.6)
+            guess = close_names(name, columns)
             hint = f"; did you mean '{guess[0]}'?" if guess else ""
             raise ModelError(
                 f"unknown variable '{name}' (not a column of {data_name}{hint})",

@@ -12,6 +12,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.errors import DataError, printable
+from cfa_tool.numbers import number as strict_number
 from cfa_tool.estimation.linalg import cholesky_log_det
 
 
@@ -79,11 +80,10 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
                 raise DataError(f"{where}: the number is too large to compute with") from None
             continue
         text = str(value).strip()
-        try:
-            number = float(text)
-        except (ValueError, OverflowError):
-            number = None
-        if number is None or text.lower() in ("inf", "+inf", "-inf", "infinity", "-infinity", "nan"):
+        if not text:  # a cell of spaces is an empty cell, as in a CSV file
+            continue
+        number = strict_number(text)
+        if number is None:
             if text.lower() in ("true", "false"):
                 raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
             shown = printable(text if len(text) <= 40 else text[:37] + "...")

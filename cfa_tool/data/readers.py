@@ -75,19 +75,30 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str]) -> pd.DataFrame
     except Exception as exc:  # openpyxl raises many kinds for damaged files
         raise DataError(f"'{path}' cannot be read as an Excel workbook ({type(exc).__name__})") from None
     names = book.sheetnames
+    if sheet is not None and not isinstance(sheet, str):
+        raise DataError(f"the sheet must be given by its name (text), not {type(sheet).__name__}")
     if sheet is None:
         ws = book[names[0]]
     elif sheet in names:
         ws = book[sheet]
     else:
-        raise DataError(f"'{path}' has no sheet '{sheet}' (sheets: {', '.join(names)})")
-    merged = [str(rng) for rng in ws.merged_cells.ranges if rng.min_row == 1]
-    if merged:
-        raise DataError(f"{path} (sheet '{ws.title}'): the header row has merged cells ({merged[0]}); "
-                        f"give every column its own name in one header row")
+        raise DataError(f"'{path}' has no sheet '{printable(sheet)}' (sheets: {printable(', '.join(names))})")
+    where = f"{path} (sheet '{printable(ws.title)}')"
+    if not isinstance(ws, openpyxl.worksheet.worksheet.Worksheet):
+        raise DataError(f"{where} is a chart, not a table of data; choose a sheet of data with --sheet "
+                        f"(sheets: {printable(', '.join(names))})")
+    if ws.max_row * ws.max_column > MAX_EXCEL_CELLS:
+        raise DataError(f"{where}: the sheet's used range is {ws.calculate_dimension()}, far larger than a table of "
+                        f"answers; delete the stray cells far from the table, or save the table as CSV")
     rows = list(ws.iter_rows(values_only=True))
-    if not rows:
-        raise DataError(f"{path} (sheet '{ws.title}') is empty")
+    first = next((k for k, r in enumerate(rows) if any(v not in (None, "") for v in r)), None)
+    if first is None:
+        raise DataError(f"{where} is empty")
+    rows = rows[first:]  # empty rows above the header
+    merged = [str(rng) for rng in ws.merged_cells.ranges if rng.min_row == first + 1]
+    if merged:
+        raise DataError(f"{where}: the header row has merged cells ({merged[0]}); "
+                        f"give every column its own name in one header row")
     header = [None if h is None else str(h).strip() for h in rows[0]]
     while header and header[-1] in (None, ""):
         header.pop()
@@ -105,12 +116,32 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str]) -> pd.DataFrame
     body = [list(r[:width]) for r in rows[1:] if any(v is not None for v in r[:width])]
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
+    if any(v is None for r in body for v in r):
+        _check_uncomputed_formulas(path, ws.title, first)
     frame = pd.DataFrame(body, columns=header)
     if row_names:
         frame = frame.iloc[:, 1:]
         notes.append(f"{path} (sheet '{ws.title}'): the first column has no name in the header and was read as row "
                      f"names, not as data")
     return frame
+
+
+MAX_EXCEL_CELLS = 20_000_000
+
+
+def _check_uncomputed_formulas(path: Path, title: str, first: int) -> None:
+    """Cells that are empty in the saved values but hold a formula: the workbook was written by a program that
+    stores formulas without calculating them, and reading them as missing answers would be wrong."""
+    import openpyxl
+
+    formulas = openpyxl.load_workbook(path, read_only=True, data_only=False)[title]
+    values = openpyxl.load_workbook(path, read_only=True, data_only=True)[title]
+    for row_f, row_v in zip(formulas.iter_rows(min_row=first + 2), values.iter_rows(min_row=first + 2, values_only=True)):
+        for cell, value in zip(row_f, row_v):
+            if value is None and isinstance(cell.value, str) and cell.value.startswith("="):
+                raise DataError(f"{path} (sheet '{printable(title)}'): cell {cell.coordinate} holds a formula whose value "
+                                f"was never calculated (the program that wrote the file does not calculate); open and save "
+                                f"the workbook in a spreadsheet program, or save the table as CSV")
 
 
 def _read_labelled(path: Path) -> LoadedData:
@@ -128,7 +159,8 @@ def _read_labelled(path: Path) -> LoadedData:
     if frame.shape[0] == 0:
         raise DataError(f"data file '{path}' has variables but no rows of data")
     labels = {k: v for k, v in (meta.column_names_to_labels or {}).items() if v}
-    values = {k: {float(code): str(text) for code, text in v.items()} for k, v in (meta.variable_value_labels or {}).items()}
+    values = {k: {(float(code) if isinstance(code, (int, float)) else str(code)): str(text) for code, text in v.items()}
+              for k, v in (meta.variable_value_labels or {}).items()}
     return LoadedData(frame, str(path), labels, values)
 
 

@@ -31,6 +31,7 @@ from cfa_tool.data.moments import SampleMoments, _check_moments
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, printable
 from cfa_tool.input_files import input_bytes, normalise_line_ends, text_lines, utf16_text
+from cfa_tool.numbers import number, whole_number
 from cfa_tool.options import MAX_OBSERVATIONS
 
 MAX_SUMMARY_BYTES = 50_000_000
@@ -43,10 +44,9 @@ def _numbers(text: str, where: str) -> list[float]:
     for token in re.split(r"[\s,]+", text.strip()):
         if not token:
             continue
-        try:
-            value = float(token)
-        except ValueError:
-            raise DataError(f"{where}: '{token}' is not a number") from None
+        value = number(token)
+        if value is None:
+            raise DataError(f"{where}: '{printable(token)}' is not a number")
         if not np.isfinite(value):
             raise DataError(f"{where}: '{token}' is not a finite number")
         out.append(value)
@@ -92,11 +92,13 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
         if key not in fields:
             raise DataError(f"{path}: the file has no '{key}:' line")
     names = [t for t in re.split(r"[\s,]+", fields["variables"][0]) if t]
+    if not names:
+        raise DataError(f"{path}:{fields['variables'][1]}: the 'variables:' line names no variables")
     if len(set(names)) != len(names):
         dup = next(n for n in names if names.count(n) > 1)
         raise DataError(f"{path}:{fields['variables'][1]}: the variable '{dup}' is named twice")
     n_text, n_line = fields["observations"]
-    if not n_text.isdigit() or len(n_text) > 13:
+    if whole_number(n_text) is None or whole_number(n_text) < 1 or len(n_text) > 13:
         shown = printable(n_text if len(n_text) <= 20 else n_text[:17] + "...")
         raise DataError(f"{path}:{n_line}: the number of observations must be a whole number from 1 to "
                         f"{MAX_OBSERVATIONS:,}, not '{shown}'")

@@ -8,8 +8,7 @@ with too few indicators to be identified.
 
 from __future__ import annotations
 
-import difflib
-
+from cfa_tool.suggest import close_names
 from cfa_tool.errors import Location, ModelError
 from cfa_tool.language.spec import ParameterRef, Spec
 
@@ -113,12 +112,31 @@ def _check_size(spec: Spec) -> None:
 
 
 def _check_scaling(spec: Spec) -> None:
-    """Every factor a 'scale' statement names must be a factor of the model."""
+    """Every factor a 'scale' statement names must be a factor of the model; a factor named by two
+    'scale' statements, or named by one and scaled by the model's own fix of its loading or variance,
+    gets two scales: an error, never a silent choice."""
     factors = set(spec.factor_names)
+    named: dict[str, object] = {}
+    fixed_scale: dict[str, object] = {}
+    for setting in spec.fixed:
+        for ref in setting.refs:
+            if ref.group is None and ref.kind == "loading" and ref.names[0] in factors:
+                fixed_scale.setdefault(ref.names[0], ref)
+            elif ref.group is None and ref.kind == "variance" and ref.names[0] in factors:
+                fixed_scale.setdefault(ref.names[0], ref)
     for setting in spec.scaling:
         for name in setting.factors:
+            if name.text in named:
+                raise _fail(spec, f"'{name}' is named by two 'scale' statements (the first on line "
+                                  f"{named[name.text].line}); give each factor one scale", name.location)
+            named[name.text] = name.location
+            if name.text in fixed_scale:
+                ref = fixed_scale[name.text]
+                raise _fail(spec, f"'scale {name} by {setting.method}' and the fix of {ref} (line {ref.location.line}) both "
+                                  f"set the scale of '{name}'; keep one of them", name.location)
+        for name in setting.factors:
             if name.text not in factors:
-                guess = difflib.get_close_matches(name.text, spec.factor_names, n=1)
+                guess = close_names(name.text, spec.factor_names)
                 if guess:
                     hint = f"; did you mean '{guess[0]}'?"
                 elif name.text in set(spec.observed_names):
@@ -142,7 +160,7 @@ def _known_names(spec: Spec) -> list[str]:
 
 
 def _unknown_name(spec: Spec, name: str, location: Location | None) -> ModelError:
-    guess = difflib.get_close_matches(name, _known_names(spec), n=1)
+    guess = close_names(name, _known_names(spec))
     hint = f"; did you mean '{guess[0]}'?" if guess else ""
     return _fail(spec, f"'{name}' is not a factor or an indicator in this model{hint}", location)
 

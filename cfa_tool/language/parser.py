@@ -9,7 +9,6 @@ identification) live in :mod:`cfa_tool.language.checks`.
 
 from __future__ import annotations
 
-import difflib
 import re
 from functools import lru_cache
 from pathlib import Path
@@ -17,6 +16,7 @@ from pathlib import Path
 from lark import Lark, Token, Tree
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
+from cfa_tool.suggest import close_names
 from cfa_tool.errors import Location, ModelError, printable
 from cfa_tool.input_files import input_bytes, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.language.spec import (
@@ -92,7 +92,10 @@ def parse_model(text: str, source: str = "<model>") -> Spec:
 
     Specs are immutable, so the last few parses are remembered: loops that fit the same
     model text many times (resampling, simulations) parse it once."""
-    return _parse_model(text, source)
+    if not isinstance(text, str):
+        raise ModelError(f"model text must be text (str), not {type(text).__name__}"
+                         + ("; decode the bytes first" if isinstance(text, (bytes, bytearray)) else ""))
+    return _parse_model(text, str(source))
 
 
 @lru_cache(maxsize=32)
@@ -145,7 +148,7 @@ def _unexpected_token_message(exc: UnexpectedToken) -> str:
     words = [_terminal_word(name) for name in expected]
     if "'factor'" in words:  # the parser wanted a new statement
         word = str(token)
-        guess = difflib.get_close_matches(word, STATEMENT_WORDS, n=1)
+        guess = close_names(word, STATEMENT_WORDS)
         hint = f"; did you mean '{guess[0]}'?" if guess else f"; a statement starts with one of: {', '.join(STATEMENT_WORDS)}"
         return f"unknown statement {shown}{hint}"
     return f"unexpected {shown}; expected {_or_list(sorted(set(words)))}"
@@ -248,7 +251,7 @@ class _Builder:
             elif kind == "invariant_stmt":
                 for word in self.name_list(stmt.children[0]):
                     if word.text not in INVARIANCE_CLASSES:
-                        guess = difflib.get_close_matches(word.text, INVARIANCE_CLASSES, n=1)
+                        guess = close_names(word.text, INVARIANCE_CLASSES)
                         hint = f"did you mean '{guess[0]}'?" if guess else "use " + _or_list(list(INVARIANCE_CLASSES))
                         raise self.error(f"'{word}' is not something that can be held equal across groups; {hint}", word.location)
                     if word.text not in invariant:
@@ -327,7 +330,7 @@ class _Builder:
             kind_token, *name_nodes = ref.children
             kind = str(kind_token)
             if kind not in REFERENCE_KINDS:
-                guess = difflib.get_close_matches(kind, REFERENCE_KINDS, n=1)
+                guess = close_names(kind, REFERENCE_KINDS)
                 hint = f"did you mean '{guess[0]}'?" if guess else "use " + _or_list([f"{k}(...)" for k in REFERENCE_KINDS])
                 raise self.error(f"unknown kind of parameter '{kind}'; {hint}", kind_token)
             names = tuple(self.name(n).text for n in name_nodes)
@@ -350,7 +353,7 @@ class _Builder:
         target, method_node = stmt.children
         method = self.name(method_node)
         if method.text not in SCALING_METHODS:
-            guess = difflib.get_close_matches(method.text, SCALING_METHODS, n=1)
+            guess = close_names(method.text, SCALING_METHODS)
             hint = f"did you mean '{guess[0]}'?" if guess else f"use one of: {', '.join(SCALING_METHODS)}"
             raise self.error(f"unknown way to scale a factor '{method.text}'; {hint}", method.location)
         factors = () if target.data == "all_factors" else self.name_list(target.children[0])

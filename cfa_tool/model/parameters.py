@@ -23,12 +23,12 @@ fixed parameters have none, and effects coding writes one loading as
 
 from __future__ import annotations
 
-import difflib
 from dataclasses import dataclass
 from functools import cached_property
 
 import numpy as np
 
+from cfa_tool.suggest import close_names
 from cfa_tool.errors import ModelError
 from cfa_tool.language.checks import all_refs, exogenous_factors
 from cfa_tool.language.spec import INVARIANCE_CLASSES, ParameterRef, Spec
@@ -242,6 +242,13 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
 
     invariant = _invariant_kinds(spec)
     exceptions = {r.key() for r in spec.noninvariant}
+    if multi:
+        for ref in spec.noninvariant:
+            kind = "threshold" if ref.kind == "threshold" else _entry_kind(entries[(0, *ref.key())])
+            if kind not in invariant:
+                word = next((w for w, kinds in INVARIANCE_CLASSES.items() if kind in kinds), kind)
+                raise _fail(spec, f"'noninvariant {ref}' exempts a parameter from being held equal across groups, but "
+                                  f"{word} are not held equal ('invariant {word}' is missing), so it has no effect", ref)
 
     def tied_across_groups(kind_key: tuple) -> bool:
         kind, names = kind_key
@@ -357,6 +364,30 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             return None
         return index_of_root[find(key)]
 
+    def scale_fixed_everywhere(ref: ParameterRef) -> bool:
+        """The parameter is fixed to give a factor its scale (a marker's loading, a factor's variance) in every
+        group the statement names: a start value, a bound or an exemption there would have no effect."""
+        keys = [(g, *ref.key()) for g in groups_of(ref)]
+        return all(entries[k]["fixed"] is not None and entries[k]["origin"] == "scale" for k in keys)
+
+    def no_effect(ref: ParameterRef, word: str) -> ModelError:
+        factor = ref.names[0]
+        how = (f"free it ('free {ref}'; the next indicator then sets the scale) or scale '{factor}' another way"
+               if ref.kind == "loading" else f"scale '{factor}' by a marker instead ('scale {factor} by marker')")
+        return _fail(spec, f"{ref} is fixed to set the scale of '{factor}', so {word} on it has no effect; {how}", ref)
+
+    for setting in spec.starts:
+        for ref in setting.refs:
+            if scale_fixed_everywhere(ref):
+                raise no_effect(ref, "a start value")
+    for bound in spec.bounds:
+        for ref in bound.refs:
+            if scale_fixed_everywhere(ref):
+                raise no_effect(ref, "a bound")
+    for ref in spec.noninvariant:
+        if ref.kind != "threshold" and scale_fixed_everywhere(ref):
+            raise no_effect(ref, "'noninvariant'")
+
     start = np.full(n_free, np.nan)
     for setting in spec.starts:
         for ref in refs_in_order(setting.refs):
@@ -454,7 +485,7 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
         return
     for ref in refs:
         if ref.group not in group_labels:
-            guess = difflib.get_close_matches(ref.group, group_labels, n=1)
+            guess = close_names(ref.group, group_labels)
             hint = f"; did you mean '{guess[0]}'?" if guess else f"; the groups are {', '.join(group_labels)}"
             raise _fail(spec, f"there is no group '{ref.group}' in the data{hint}", ref)
 

@@ -63,6 +63,9 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     With ordinal items (an 'ordinal' statement in any model, or ``ordinal``) every model is fitted
     by least squares on thresholds and polychoric correlations and nested pairs get the adjusted
     difference test."""
+    if isinstance(models, (str, Spec)) or not hasattr(models, "__iter__"):
+        raise OptionError("compare takes a list of models (model files, model texts or parsed models)")
+    models = list(models)
     if len(models) < 2:
         raise OptionError("comparing needs at least two models")
     fit_options = replace(make_options(options), diagnostics=False)

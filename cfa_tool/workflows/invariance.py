@@ -150,7 +150,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     start = None
     for level, classes, kinds in ladder.levels:
         while True:
-            level_spec = replace(spec, invariant=classes, noninvariant=tuple(exceptions))
+            # exemptions apply from the level that holds their class equal
+            level_spec = replace(spec, invariant=classes, noninvariant=tuple(r for r in exceptions
+                                                                          if _exempts_a_class_of(r, classes)))
             est = ladder.estimate(level_spec, groups, fit_options, start)
             result = ladder.assess(level_spec, groups, est, fit_options, group)
             if not result.converged:
@@ -281,6 +283,17 @@ def _pinned_entries(table, kinds: tuple[str, ...], group: int) -> list:
     return [(par.kind, par.variables, par.matrix, par.row, par.col) for par in table.parameters
             if par.group == group and par.kind in kinds and par.kind in ("intercept", "residual_variance")
             and not par.free and par.origin == "scale"]
+
+
+def _exempts_a_class_of(ref: ParameterRef, classes: tuple[str, ...]) -> bool:
+    """Whether 'noninvariant REF' concerns one of the classes held equal at this level."""
+    from cfa_tool.language.spec import INVARIANCE_CLASSES
+
+    kinds = {k for c in classes for k in INVARIANCE_CLASSES[c]}
+    if ref.kind in ("loading", "intercept", "mean", "threshold"):
+        return ref.kind in kinds
+    return bool(kinds & ({"residual_variance", "factor_variance"} if ref.kind == "variance"
+                         else {"residual_covariance", "factor_covariance"}))
 
 
 def _ref_names(candidate: ModificationIndex) -> tuple[str, ...]:

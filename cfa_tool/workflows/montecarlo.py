@@ -61,6 +61,9 @@ def _replicate(task) -> tuple[bool, np.ndarray, np.ndarray]:
 
 def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int = 1, alpha: float = 0.05,
                       workers: int | None = None, cluster: str | None = None, progress=None) -> MonteCarloPower:
+    from cfa_tool.api import continuous_only, load_spec
+
+    spec = continuous_only(load_spec(spec), "power-simulation")
     replications = check.replications(replications, minimum=2)
     seed = check.seed(seed)
     alpha = check.probability("alpha (the significance level)", alpha)
@@ -69,6 +72,9 @@ def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int
     if n_obs <= p + 1:
         raise OptionError(f"the sample size {n_obs} is too small for {p} variables: each simulated data set needs more "
                           f"rows than variables (and a factor analysis far more)")
+    if n_obs * p > check.MAX_SIMULATED_CELLS:
+        raise OptionError(f"{n_obs:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values per "
+                          f"simulated data set; plan with a smaller sample size")
     population = population_from_spec(spec)
     table = population.table
     seeds = np.random.SeedSequence(seed).generate_state(replications)

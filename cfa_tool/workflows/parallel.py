@@ -21,6 +21,7 @@ def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, cluster
     """fn(task) for every task, results in task order.  ``progress(0, more=n)`` announces the n tasks
     before they start (a workflow may run several batches), and ``progress(k)`` is called as tasks finish."""
     workers = check.workers(workers)
+    progress = _progress_function(progress)
     if progress:
         progress(0, more=len(tasks))
     if cluster:
@@ -41,6 +42,25 @@ def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, cluster
             if progress:
                 progress(len(results))
     return out
+
+
+def _progress_function(progress):
+    """``progress`` as a function of (done, more=0): one that takes only the count done gets no
+    announcements of how many tasks are coming."""
+    if progress is None:
+        return None
+    if not callable(progress):
+        raise OptionError(f"progress must be a function called with the number of tasks done, not "
+                          f"{type(progress).__name__}")
+    import inspect
+
+    try:
+        parameters = inspect.signature(progress).parameters
+    except (TypeError, ValueError):
+        return progress
+    if "more" in parameters or any(p.kind is p.VAR_KEYWORD for p in parameters.values()):
+        return progress
+    return lambda done, more=0: progress(done) if done else None
 
 
 def _one_blas_thread() -> None:

@@ -199,9 +199,14 @@ class SimulatedData:
                 "categories": self.categories, "missing_share": self.missing, "population": self.population.values()}
 
 
-def simulate(spec: Spec, n: int, seed: int, categories: int | None = None, missing: float = 0.0) -> SimulatedData:
-    """Data from the model's population values: continuous, or ordinal with ``categories``
-    categories (whole numbers 1..k), with a share ``missing`` of answers removed completely at random."""
+def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing: float = 0.0) -> SimulatedData:
+    """Data from the model's population values (``spec``: a model file, model text or parsed model):
+    continuous, or ordinal with ``categories`` categories (whole numbers 1..k), with a share ``missing``
+    of answers removed completely at random.  Items an 'ordinal' statement declares are cut into
+    categories (and need ``categories``); without such a statement ``categories`` cuts every item."""
+    from cfa_tool.api import load_spec
+
+    spec = load_spec(spec)
     n = check.whole_number("the number of rows to simulate", n, 1)
     seed = check.seed(seed)
     missing = check.real_number("the share of missing answers", missing, 0.0, 1.0, open_high=True)
@@ -211,14 +216,19 @@ def simulate(spec: Spec, n: int, seed: int, categories: int | None = None, missi
     if n * p > check.MAX_SIMULATED_CELLS:
         raise OptionError(f"{n:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values; "
                           f"simulate fewer rows at a time")
+    declared = [n_.text for n_ in spec.ordinal]
+    if declared and categories is None:
+        raise OptionError(f"the model declares ordinal items ({', '.join(declared[:5])}); give the number of "
+                          f"categories to cut them into (--categories)")
     population = population_from_spec(spec)
     rng = np.random.default_rng(seed)
     rows = simulate_rows(population.sigma, n, rng)
     if categories is not None:
-        rows = to_ordinal(rows, population.sigma, categories)
+        cut = [population.observed.index(x) for x in declared] if declared else list(range(rows.shape[1]))
+        rows[:, cut] = to_ordinal(rows[:, cut], population.sigma[np.ix_(cut, cut)], categories)
     if missing:
         rows[rng.random(rows.shape) < missing] = np.nan
     frame = pd.DataFrame(rows, columns=list(population.observed))
     if categories is not None:  # answers are whole numbers (a nullable integer type keeps the gaps)
-        frame = frame.astype("Int64")
+        frame = frame.astype({population.observed[k]: "Int64" for k in cut})
     return SimulatedData(frame, population, seed, categories, missing)
