@@ -16,8 +16,9 @@ from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file, summary_moments
 from cfa_tool import options as opt
-from cfa_tool.errors import ModelError, OptionError
+from cfa_tool.errors import ModelError, OptionError, printable
 from cfa_tool.fitting import FitOptions, fit_moments
+from cfa_tool.ordinal_fitting import ORDINAL_METHODS
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec
 from cfa_tool.results import CheckResult, FitResult
@@ -172,7 +173,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
         keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
         variables: list[str] | None = None, matrix: str = "covariance", sds=None, divisor: str = "n-1",
-        ordinal: str | list[str] | None = None, ordinal_estimator: str = "diagonally-weighted", **options) -> FitResult:
+        ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, **options) -> FitResult:
     """Fit a confirmatory factor model by maximum likelihood.
 
     ``model``: model text, a path to a model file, or a parsed Spec.
@@ -193,9 +194,17 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     standard errors and fit indices.
     """
     fit_options = make_options(options)
+    if covariance is None:
+        given = [name for name, value in (("n_obs", n_obs), ("means", means), ("variables", variables), ("sds", sds))
+                 if value is not None] + [name for name, value, default in (("matrix", matrix, "covariance"),
+                                                                          ("divisor", divisor, "n-1")) if value != default]
+        if given:
+            raise OptionError(f"{given[0]} goes with a covariance matrix (covariance=...), and none is given")
     if covariance is not None or summary_source(data):
         refuse_row_options("a covariance matrix" if covariance is not None else f"'{data}'", sheet, missing_codes, keep, group)
-        if ordinal:
+        if reference_group is not None:
+            raise OptionError("a reference group needs groups, and summary statistics describe one group")
+        if ordinal or ordinal_estimator is not None:
             raise OptionError("ordinal items need the raw answers, not summary statistics")
         spec = load_spec(model)
         if covariance is not None:
@@ -214,6 +223,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
     ordinal_items = ordinal_items_of(spec, ordinal)
+    ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if ordinal_items:
         result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
         labels = tuple(g.label for g in result.groups) if group is not None else None
@@ -322,6 +332,19 @@ def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, ref
     return groups, _no_group_notes(no_group, group) + label_notes(frame, group)
 
 
+def ordinal_estimator_option(method: str | None, ordinal_items) -> str:
+    """The least-squares estimator for ordinal items (default diagonally weighted); naming one for a model
+    without ordinal items is an error, since it could not apply."""
+    if method is None:
+        return ORDINAL_METHODS[0]
+    if method not in ORDINAL_METHODS:
+        raise OptionError(f"the ordinal estimator must be one of {', '.join(ORDINAL_METHODS)}, not '{printable(method)}'")
+    if not ordinal_items:
+        raise OptionError("an estimator for ordinal items is chosen, but the model has no ordinal items (declare them "
+                          "with an 'ordinal' statement or --ordinal), so it cannot apply")
+    return method
+
+
 def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
     items = {n.text for n in spec.ordinal}
     if ordinal is not None and not isinstance(ordinal, str) and not (
@@ -356,6 +379,11 @@ def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):
         names = [str(v) for v in variables]
     if matrix not in ("covariance", "correlation"):
         raise OptionError(f"matrix must be 'covariance' or 'correlation', not '{matrix}'")
+    if len(set(names)) != len(names):
+        duplicate = next(n for n in names if names.count(n) > 1)
+        raise OptionError(f"the variable '{printable(duplicate)}' is named twice in the covariance matrix")
+    if np.iscomplexobj(values if not isinstance(values, pd.DataFrame) else values.to_numpy()):
+        raise OptionError("the covariance matrix holds complex numbers; it must hold real numbers")
     if divisor not in ("n-1", "n"):
         raise OptionError(f"divisor must be 'n-1' or 'n', not '{divisor}'")
     return summary_moments(names, values, n_obs, matrix, sds, means, divisor, "<covariance matrix>")
@@ -389,6 +417,15 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0,
                            {name: 1.0 for name in spec.observed_names}, None)
     spec, frame, source = read_inputs(model, data, **read_options)
+    ordinal_items = ordinal_items_of(spec, None)
+    if ordinal_items:  # the same data checks as the fit (categories, empty cells in groups, duplicates)
+        if group is not None:
+            ordinal_groups(spec, frame, source, group, reference_group, ordinal_items)
+        else:
+            from cfa_tool.data.polychoric import ordinal_moments
+
+            ordinal_moments(frame, spec.observed_names, source,
+                            frozenset(x for x in spec.observed_names if x not in ordinal_items))
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
     groups, _ = moments_for(spec, frame, source, group, reference_group, missing=options.missing)
     labels = tuple(label for label, _ in groups) if group is not None else None

@@ -200,7 +200,7 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
 def _add_ordinal_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--ordinal", metavar="ITEMS",
                    help="'all' or comma-separated items to treat as ordinal (thresholds and polychoric correlations)")
-    p.add_argument("--ordinal-estimator", choices=("diagonally-weighted", "unweighted"), default="diagonally-weighted",
+    p.add_argument("--ordinal-estimator", choices=("diagonally-weighted", "unweighted"), default=None,
                    help="least squares for ordinal items (default diagonally-weighted)")
 
 
@@ -338,6 +338,8 @@ def _simulation_command(args: argparse.Namespace) -> int:
         from cfa_tool.workflows.power import plan
 
         df = args.df
+        if args.model and args.df is not None:
+            raise OptionError("give a model file or --df, not both (the model file gives the degrees of freedom)")
         if args.model:
             from cfa_tool.language.parser import read_model_file
             from cfa_tool.model.parameters import build_parameter_table
@@ -346,7 +348,8 @@ def _simulation_command(args: argparse.Namespace) -> int:
             df = table.p * (table.p + 1) // 2 - table.n_free
         if df is None:
             raise OptionError("give a model file or --df")
-        return _emit(args, plan(df, args.test, args.n, args.alpha, args.target), W.render_power)
+        variables = table.p if args.model else None
+        return _emit(args, plan(df, args.test, args.n, args.alpha, args.target, variables=variables), W.render_power)
     from cfa_tool.language.parser import read_model_file
 
     if args.command == "simulate":
@@ -362,7 +365,10 @@ def _simulation_command(args: argparse.Namespace) -> int:
             from cfa_tool.reporting.json_report import to_json
 
             write_file(args._targets["--json"], to_json(simulated))
-        write_file(args._targets["--output"], frame.to_csv(index=False, na_rep=""))
+        from cfa_tool.reporting.text_formats import csv_cell
+
+        guarded = frame.set_axis([csv_cell(c) for c in frame.columns], axis=1)  # a name spreadsheets would run
+        write_file(args._targets["--output"], guarded.to_csv(index=False, na_rep=""))
         _say(args, f"{len(frame)} rows of {frame.shape[1]} variables written to {args.output} (seed {args.seed})")
         return 0
     with _progress(args.command) as advance:
@@ -426,8 +432,10 @@ def _progress(label: str):
 
 
 def _ordinal_arg(text: str | None):
-    if not text:
+    if text is None:
         return None
+    if not text.strip(" ,"):
+        raise OptionError("--ordinal names no items: give 'all' or item names separated by commas")
     return "all" if text.strip() == "all" else [t.strip() for t in text.split(",") if t.strip()]
 
 

@@ -234,12 +234,16 @@ def test_model_text_or_path_by_explicit_rules(tmp_path, hs_items):
     ({"sds": [1.0] * 8 + [-1.0]}, "give 9 positive standard deviations, one per variable (9 given, not all positive)"),
     ({"means": [0.0] * 10}, "give 9 finite means, one per variable (10 given)"),
     ({"asymmetric": True}, "the matrix is not symmetric (row 1, column 2 differs from row 2, column 1)"),
+    ({"variables": ITEMS[:8] + ["x1"]}, "the variable 'x1' is named twice"),
 ])
 def test_summary_statistics_from_python_are_checked_like_files(hs_items, options, words):
     cov = hs_items[ITEMS].cov().to_numpy().copy()
     if options.pop("asymmetric", False):
         cov[1, 0] += 0.5
     arguments = {"n_obs": 301, "variables": ITEMS, **options}
+    if "sds" in options:  # standard deviations go with a correlation matrix
+        cov = hs_items[ITEMS].corr().to_numpy()
+        arguments["matrix"] = "correlation"
     with pytest.raises((DataError, OptionError)) as info:
         cfa_tool.fit(THREE_FACTORS, covariance=cov, **arguments)
     assert words in str(info.value)

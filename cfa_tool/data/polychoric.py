@@ -29,7 +29,7 @@ from scipy import optimize
 from cfa_tool import distributions as dist
 
 from cfa_tool.data.moments import numeric_columns
-from cfa_tool.errors import DataError
+from cfa_tool.errors import DataError, printable
 from cfa_tool.estimation.bivariate import bivariate_cdf, bivariate_pdf
 
 MAX_CATEGORIES = 15
@@ -232,11 +232,20 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
     joint_gamma = joint.T @ joint / n
     k = joint.shape[1] - influence.shape[1]
     gamma = joint_gamma[k:, k:]
-    if np.linalg.eigvalsh(R)[0] <= 0:
+    near = np.abs(R - np.eye(p)) > NEAR_DUPLICATE
+    if near.any():
+        i, j = np.argwhere(np.tril(near, -1))[0]
+        raise DataError(f"{source}{where}: items '{printable(names[j])}' and '{printable(names[i])}' correlate "
+                        f"{R[i, j]:.4f}: they give (nearly) the same answers, so one adds nothing and the correlation "
+                        f"matrix is singular; drop one of them")
+    if np.linalg.eigvalsh(R)[0] <= 1e-8:
         raise DataError(f"{source}{where}: the polychoric correlation matrix is not positive definite; "
                         f"some items may be near duplicates or some categories nearly empty")
     return OrdinalMoments(tuple(names), n, len(frame), int((~complete).sum()), source, tuple(categories), tuple(thresholds),
                           R, gamma, codes, data.mean(axis=0), data.std(axis=0), frozenset(continuous), joint_gamma)
+
+
+NEAR_DUPLICATE = 0.995  # a correlation this close to 1 in size means two items answer alike (the search stops at .999)
 
 
 def _categories(values) -> str:

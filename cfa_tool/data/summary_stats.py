@@ -27,7 +27,7 @@ from pathlib import Path
 
 import numpy as np
 
-from cfa_tool.data.moments import SampleMoments, _check_moments
+from cfa_tool.data.moments import LARGEST_VALUE, SMALLEST_SPREAD, SampleMoments, _check_moments
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, printable
 from cfa_tool.input_files import input_bytes, normalise_line_ends, text_lines, utf16_text
@@ -157,6 +157,9 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
         raise DataError(f"{source}: the matrix is {shape} but {p} variables are named")
     if not np.all(np.isfinite(matrix)):
         raise DataError(f"{source}: the matrix holds a missing or infinite value")
+    if np.abs(matrix).max() > LARGEST_VALUE:
+        raise DataError(f"{source}: the matrix holds {np.abs(matrix).max():.3g}, too large to compute with; rescale the "
+                        f"variables (the fit does not change)")
     if not np.allclose(matrix, matrix.T, rtol=1e-6, atol=1e-8 * max(1.0, float(np.abs(matrix).max()))):
         i, j = np.argwhere(~np.isclose(matrix, matrix.T, rtol=1e-6, atol=1e-8 * max(1.0, float(np.abs(matrix).max()))))[0]
         raise DataError(f"{source}: the matrix is not symmetric (row {i + 1}, column {j + 1} differs from row {j + 1}, "
@@ -166,6 +169,9 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
         raise DataError(f"{source}: the variance of '{printable(names[j])}' on the diagonal is {matrix[j, j]:g}; "
                         f"variances must be positive")
     n_obs = check.observations(n_obs)
+    if sds is not None and kind != "correlation":
+        raise DataError(f"{source}: standard deviations turn a correlation matrix into covariances, and this matrix is "
+                        f"declared a covariance matrix; if it holds correlations, declare it so (matrix: correlation)")
     if sds is not None:
         sds = _number_array(sds, source, "the standard deviations").ravel()
         if len(sds) != p or not np.all(np.isfinite(sds)) or np.any(sds <= 0):
@@ -175,6 +181,12 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
         means = _number_array(means, source, "the means").ravel()
         if len(means) != p or not np.all(np.isfinite(means)):
             raise DataError(f"{source}: give {p} finite means, one per variable ({len(means)} given)")
+        if np.abs(means).max() > LARGEST_VALUE:
+            raise DataError(f"{source}: a mean of {np.abs(means).max():.3g} is too large to compute with; rescale the "
+                            f"variables (the fit does not change)")
+    if sds is not None and (sds.max() > LARGEST_VALUE ** 0.5 or sds.min() < SMALLEST_SPREAD):
+        raise DataError(f"{source}: standard deviations from {sds.min():.3g} to {sds.max():.3g} cannot be computed with; "
+                        f"rescale the variables (the fit does not change)")
     if n_obs <= p:
         raise DataError(f"{source}: {n_obs} observations for {p} variables; the analysis needs more observations than variables")
     notes = []

@@ -5,10 +5,13 @@ from __future__ import annotations
 import html
 import re
 
+from cfa_tool.errors import printable
+
 
 def html_text(value) -> str:
-    """Text for HTML and SVG element content and attribute values."""
-    return html.escape(str(value), quote=True)
+    """Text for HTML and SVG element content and attribute values; control characters (which XML does not
+    allow and a browser would not show) are written as visible escapes."""
+    return html.escape(printable(value), quote=True)
 
 
 # Characters that change the meaning of text inside a paragraph or a table cell: emphasis, code,

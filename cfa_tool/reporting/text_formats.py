@@ -29,7 +29,9 @@ def all_tables(result) -> list[ReportTable]:
     return out
 
 
-_FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
+# what spreadsheets run as a formula at the start of a cell, also in the full-width forms that some
+# locales' spreadsheet programs accept
+_FORMULA_START = ("=", "+", "-", "@", "\t", "\r", "\uff1d", "\uff0b", "\uff0d", "\uff20")
 
 
 def csv_cell(value) -> str:

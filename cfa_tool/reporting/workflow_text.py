@@ -27,6 +27,11 @@ def _difference_cells(t) -> list[str]:
 
 def render_comparison(comparison, console: Console) -> None:
     console.print(Text("Model comparison", style="bold underline"))
+    total = comparison.n_obs + comparison.rows_dropped
+    if comparison.rows_dropped > 0.05 * total:  # problems first
+        console.print(Text(f"Warning: {comparison.rows_dropped} of {total} rows ({100 * comparison.rows_dropped / total:.0f}%) "
+                           f"miss an answer on some model's variables and are left out of every model, so that all are "
+                           f"compared on the same rows; the rows left out may differ from those kept.", style="bold"))
     console.print(f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
                   f"answer on any model's variables left out).")
     table = _table("Fit of each model", [("Model", "left"), ("Parameters", "right")] + _FIT_COLUMNS)
@@ -139,6 +144,8 @@ def render_power(result, console: Console) -> None:
     if result.power is not None:
         console.print(f"Power with N = {result.n_obs}: {result.power:.3f}")
     console.print(f"Smallest N for power {result.target_power:g}: {result.required_n}")
+    if result.note:
+        console.print(f"Note: {result.note}.")
 
 
 def render_population(simulated, console: Console) -> None:

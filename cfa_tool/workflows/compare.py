@@ -7,8 +7,8 @@ from pathlib import Path
 
 import pandas as pd
 
-from cfa_tool.api import (load_spec, make_options, moments_for, ordinal_items_of, read_inputs_with_notes,
-                          refuse_row_options, summary_source)
+from cfa_tool.api import (load_spec, make_options, moments_for, ordinal_estimator_option, ordinal_items_of,
+                          read_inputs_with_notes, refuse_row_options, summary_source)
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import OptionError
@@ -57,7 +57,7 @@ class Comparison:
 def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, group: str | None = None,
             reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
             keep: tuple[str, ...] | list[str] = (), ordinal: str | list[str] | None = None,
-            ordinal_estimator: str = "diagonally-weighted", **options) -> Comparison:
+            ordinal_estimator: str | None = None, **options) -> Comparison:
     """Fit every model to the same rows (complete on all their variables) and test each nested pair.
 
     With ordinal items (an 'ordinal' statement in any model, or ``ordinal``) every model is fitted
@@ -69,8 +69,13 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     if len(models) < 2:
         raise OptionError("comparing needs at least two models")
     fit_options = replace(make_options(options), diagnostics=False)
+    if fit_options.test == "yuan-bentler" or fit_options.missing == "full-information":
+        raise OptionError("compare fits every model to the same complete rows (listwise), so full-information ML and "
+                          "its Yuan-Bentler test do not apply here; use the normal-theory or the Satorra-Bentler test")
+    fit_options = replace(fit_options, missing="listwise")
     specs = [load_spec(m) for m in models]
     ordinal_items = set().union(*(ordinal_items_of(spec, ordinal) for spec in specs))
+    ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     names = _unique_names(specs)
     if summary_source(data):
         refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group)

@@ -16,7 +16,8 @@ from pathlib import Path
 
 import pandas as pd
 
-from cfa_tool.api import check_ordinal_options, make_options, moments_for, ordinal_groups, ordinal_items_of, read_inputs
+from cfa_tool.api import (check_ordinal_options, make_options, moments_for, ordinal_estimator_option, ordinal_groups,
+                          ordinal_items_of, read_inputs)
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import OptionError
@@ -120,12 +121,15 @@ class InvarianceResult:
 def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
                reference_group: str | None = None, partial: str = "none", alpha: float = 0.05,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
-               ordinal: str | list[str] | None = None, ordinal_estimator: str = "diagonally-weighted",
+               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None,
                **options) -> InvarianceResult:
     """Fit the invariance ladder; with ``partial='auto'`` free the likeliest culprits until each step holds.
 
     With ordinal items (an 'ordinal' statement or ``ordinal``) the ladder is configural, thresholds,
     metric, scalar, strict, fitted by least squares on thresholds and polychoric correlations."""
+    if not isinstance(group, str):
+        raise OptionError(f"the invariance ladder needs a group column, given by its name (text), not "
+                          f"{type(group).__name__}")
     if partial not in PARTIAL_CHOICES:
         raise OptionError(f"partial must be one of {', '.join(PARTIAL_CHOICES)}, not '{partial}'")
     alpha = check.probability("alpha (the level of the difference tests)", alpha)
@@ -134,6 +138,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     if spec.invariant:
         raise OptionError("the invariance ladder sets 'invariant' itself; remove 'invariant' statements from the model file")
     ordinal_items = ordinal_items_of(spec, ordinal)
+    ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if ordinal_items:
         check_ordinal_options(fit_options)
         groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items)

@@ -36,6 +36,7 @@ class PowerResult:
     power: float | None
     required_n: int | None
     target_power: float
+    note: str | None = None  # when the test's own answer is below what the model needs
 
     def to_dict(self) -> dict:
         return asdict(self)
@@ -73,7 +74,9 @@ def required_sample_size(df: int, rmsea_null: float, rmsea_alt: float, power: fl
 
 
 def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 0.05, target_power: float = 0.80,
-         rmsea_null: float | None = None, rmsea_alt: float | None = None) -> PowerResult:
+         rmsea_null: float | None = None, rmsea_alt: float | None = None, variables: int | None = None) -> PowerResult:
+    """Power of the RMSEA test at ``n_obs`` and the smallest N reaching ``target_power``; with the model's
+    number of ``variables``, that N is never below what estimating the model needs (more rows than variables)."""
     if test not in TESTS:
         raise OptionError(f"test must be one of {', '.join(TESTS)}, not '{test}'")
     df = check.whole_number("the degrees of freedom", df, 1, 10**7)
@@ -85,5 +88,11 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
     eps0 = eps0 if rmsea_null is None else check.real_number("the RMSEA of the null hypothesis", rmsea_null, 0.0, 1.0, open_high=True)
     epsa = epsa if rmsea_alt is None else check.real_number("the RMSEA of the alternative", rmsea_alt, 0.0, 1.0, open_high=True)
     power = rmsea_power(df, n_obs, eps0, epsa, alpha) if n_obs is not None else None
-    return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required_sample_size(df, eps0, epsa, target_power, alpha),
-                       target_power)
+    required = required_sample_size(df, eps0, epsa, target_power, alpha)
+    note = None
+    if variables is not None and required <= variables + 1:
+        note = (f"the test alone would reach the power at N = {required}, but the model's {variables} variables need more "
+                f"rows than that to be estimated at all (and a factor analysis far more); N = {variables + 2} is shown "
+                f"as the least possible")
+        required = variables + 2
+    return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required, target_power, note)

@@ -23,7 +23,7 @@ from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool import options as check
-from cfa_tool.errors import DataError, EstimationError
+from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.estimation.linalg import log_det_pd
 from cfa_tool.fitting import fit_moments
 from cfa_tool.language.spec import Spec
@@ -87,10 +87,24 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
     )
 
 
+def _same_file(first, second) -> bool:
+    import os
+
+    if isinstance(first, pd.DataFrame) or isinstance(second, pd.DataFrame):
+        return first is second
+    try:
+        return os.path.samefile(first, second)
+    except (OSError, TypeError, ValueError):
+        return False
+
+
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
               **options) -> Replication:
     """Calibrate on one data set, validate on another."""
     spec = continuous_only(load_spec(model), "replicate")
+    if _same_file(calibration, validation):
+        raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
+                          "new data (or give one file as --data to split it in two random halves)")
     cal_frame, cal_source = load_frame(calibration)
     val_frame, val_source = load_frame(validation)
     return replicate_moments(spec, _moments(spec, cal_frame, cal_source), _moments(spec, val_frame, val_source), **options)
