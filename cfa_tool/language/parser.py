@@ -50,6 +50,7 @@ _TERMINAL_WORDS = {
 MAX_MODEL_BYTES = 1_000_000
 MODEL_SUFFIX = ".cfa"  # the extension of model files
 MAX_RANGE = 2_000  # names in one range such as item1..item9
+MAX_NAMES = 20_000  # names written by all ranges of one model
 MAX_PAIRS = 20_000  # pairs named by 'covary' and 'uncorrelated' in one model
 
 
@@ -177,6 +178,7 @@ def _or_list(words: list[str]) -> str:
 class _Builder:
     def __init__(self, source: str, text: str, lines: tuple[str, ...]):
         self.group: str | None = None  # the group of the statement being built
+        self.expanded = 0  # names written by ranges so far (bounded: a short file must not expand without end)
         self.source = source
         self.text = text
         self.lines = lines
@@ -322,6 +324,9 @@ class _Builder:
                              f"{MAX_RANGE:,}", first)
         width = len(m1.group(2)) if m1.group(2).startswith("0") else 0
         location = self.loc(first)
+        self.expanded += hi - lo + 1
+        if self.expanded > MAX_NAMES:
+            raise self.error(f"the ranges of this model name more than {MAX_NAMES:,} variables in all", first)
         return [Name(f"{m1.group(1)}{str(i).zfill(width)}", location) for i in range(lo, hi + 1)]
 
     def refs(self, node: Tree) -> tuple[ParameterRef, ...]:
