@@ -112,14 +112,16 @@ class LinearScorer:
         if not answered.all():
             for method in self.methods:
                 counts[method][Unscored.NO_ANSWERS] = np.full(m, int((~answered).sum()))
-        take = np.flatnonzero(answered)
-        if not len(take):
+        if not answered.any():
             return {method: ScoreBlock(method, self.model.factors, *out[method], counts[method]) for method in self.methods}
-        sub_mask = mask[take]
-        centred = np.where(sub_mask, rows[take] - self._mu, 0.0)
-        if sub_mask.all():
-            patterns, index, sizes = sub_mask[:1], np.zeros(len(take), dtype=np.intp), np.array([len(take)])
+        if mask.all():  # complete rows: one pattern, no selection
+            take = slice(None)
+            centred = rows - self._mu
+            patterns, index, sizes = mask[:1], np.zeros(n, dtype=np.intp), np.array([n])
         else:
+            take = np.flatnonzero(answered)
+            sub_mask = mask[take]
+            centred = np.where(sub_mask, rows[take] - self._mu, 0.0)
             patterns, index, sizes = group_patterns(sub_mask)
         slots = self._slots_of(patterns)
         big = np.flatnonzero(sizes >= GATHER_BELOW)
@@ -129,8 +131,9 @@ class LinearScorer:
         for method in self.methods:
             scores, ses = out[method]
             W = self._weights[method][slots]  # (P, p, m)
-            ses[take] = self._errors[method][slots][index]
-            values = np.empty((len(take), m))
+            errors = self._errors[method][slots]
+            ses[take] = errors[0] if len(sizes) == 1 else errors[index]
+            values = np.empty((len(centred), m))
             for k in big:
                 sel = order[ends[k] - sizes[k]: ends[k]] if order is not None else slice(None)
                 values[sel] = centred[sel] @ W[k]

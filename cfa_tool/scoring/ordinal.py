@@ -53,11 +53,12 @@ class PosteriorScores:
 
 
 def _log_category_probability(upper: np.ndarray, lower: np.ndarray, sd: float) -> np.ndarray:
-    """log(Phi(upper / sd) - Phi(lower / sd)) elementwise, accurate in both tails."""
+    """log(Phi(upper / sd) - Phi(lower / sd)) elementwise, accurate in both tails: where the interval
+    starts right of 0 the same probability is taken as Phi(-lower / sd) - Phi(-upper / sd)."""
     a, b = upper / sd, lower / sd
-    left = b <= 0  # use the lower tail where the interval starts left of 0, the upper tail elsewhere
-    hi = np.where(left, log_ndtr(a), log_ndtr(-b))
-    lo = np.where(left, log_ndtr(b), log_ndtr(-a))
+    left = b <= 0
+    hi = log_ndtr(np.where(left, a, -b))
+    lo = log_ndtr(np.where(left, b, -a))
     with np.errstate(under="ignore"):
         return hi + np.log1p(-np.exp(np.minimum(lo - hi, 0.0)))
 
@@ -120,16 +121,16 @@ class EapScorer:
     def _moments(self, codes, z, centre, chol):
         """Posterior mean and covariance of eta_F from the rule placed at centre + chol u."""
         u, log_w = self.rule.points, self.rule.log_weights
-        eta = centre[:, None, :] + np.einsum("nab,kb->nka", chol, u)  # (n, K, r)
+        eta = centre[:, None, :] + u @ np.swapaxes(chol, 1, 2)  # (n, K, r)
         dev = eta - self.alpha_F
-        log_prior = -0.5 * np.einsum("nka,ab,nkb->nk", dev, self.prior_precision, dev)
-        log_f = self._log_likelihood(codes, z, eta) + log_prior + 0.5 * np.sum(u**2, axis=1) + log_w
+        log_prior = -0.5 * np.sum((dev @ self.prior_precision) * dev, axis=2)
+        log_f = self._log_likelihood(codes, z, eta) + log_prior + (0.5 * np.sum(u**2, axis=1) + log_w)
         log_f -= log_f.max(axis=1, keepdims=True)
         w = np.exp(log_f)
         w /= w.sum(axis=1, keepdims=True)
-        mean = np.einsum("nk,nka->na", w, eta)
+        mean = (w[:, None, :] @ eta)[:, 0, :]
         d = eta - mean[:, None, :]
-        cov = np.einsum("nk,nka,nkb->nab", w, d, d)
+        cov = np.swapaxes(d * w[:, :, None], 1, 2) @ d
         return mean, 0.5 * (cov + np.swapaxes(cov, 1, 2))
 
     def _posterior_F(self, codes: np.ndarray, z: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -171,10 +172,16 @@ class EapScorer:
         if not answered.all():
             unscored[Unscored.NO_ANSWERS] = np.full(m, int((~answered).sum()))
         take = np.flatnonzero(answered)
+        if not self.continuous.any() and len(take):  # rows with the same answers have the same scores: score each once
+            keys = np.ascontiguousarray(codes[take].astype(np.int8)).view(np.dtype((np.void, base.p))).ravel()
+            _, first, inverse = np.unique(keys, return_index=True, return_inverse=True)
+            distinct = take[first]
+        else:
+            distinct, inverse = take, np.arange(len(take))
         step = max(1, CELLS_PER_BLOCK // len(self.rule.points))
         F, H = self.F, self.H
-        for start in range(0, len(take), step):
-            sel = take[start:start + step]
+        for start in range(0, len(distinct), step):
+            sel = distinct[start:start + step]
             mean, cov = self._posterior_F(codes[sel], z[sel])
             full = np.zeros((len(sel), m, m))
             full[:, F[:, None], F[None, :]] = cov
@@ -188,6 +195,9 @@ class EapScorer:
                 full[:, F[:, None], H[None, :]] = np.swapaxes(cross, 1, 2)
             scores[sel] = est
             covs[sel] = full
+        if len(take):
+            scores[take] = scores[distinct][inverse]
+            covs[take] = covs[distinct][inverse]
         se = np.sqrt(np.clip(np.diagonal(covs, axis1=1, axis2=2), 0.0, None))
         return PosteriorScores(ScoreMethod.EXPECTED_A_POSTERIORI, base.factors, scores, se, covs, unscored,
                                self.rule.kind.value)
