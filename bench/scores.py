@@ -83,7 +83,6 @@ def case_scores(repeat: int) -> list[dict]:
              "speedup": theirs[0] / ours[0], "largest_difference": agree,
              "peak_mb_tenth": peak_memory(model, complete[: ROWS // 10], (ScoreMethod.REGRESSION,)),
              "peak_mb_all": peak_memory(model, complete, (ScoreMethod.REGRESSION,))}]
-    del frame
     gappy = many_rows(model, ROWS, 0.02, 2)
     with blas_threads_for(model.p):
         t, m, _ = timed(lambda: score_rows(model, gappy, LINEAR_METHODS), repeat)

@@ -157,3 +157,30 @@ def test_a_sum_needs_every_one_of_its_items():
     sums = sum_scores(model, rows)
     np.testing.assert_allclose(sums[0], [3.0, 3.0, 1.0])  # keys: y8 has a negative loading, so it is reversed
     assert np.isnan(sums[1, 2]) and np.isfinite(sums[1, :2]).all()
+
+
+def test_a_covariance_matrix_that_is_not_positive_definite_is_refused_in_plain_words():
+    from cfa_tool.errors import EstimationError
+
+    theta = -np.ones(9) * 0.5  # negative residual variances: Sigma is not positive definite
+    model = _model(CORRELATED, theta)
+    with pytest.raises(EstimationError, match="not positive definite, so no factor scores can be computed"):
+        score_rows(model, np.zeros((2, 9)))
+    with pytest.raises(EstimationError, match="not positive definite"):
+        score_quality(model)
+
+
+def test_score_quality_is_json_ready():
+    import json
+
+    quality = score_quality(_model(CORRELATED))
+    text = json.dumps(quality.to_dict())
+    assert '"method": "correlation-preserving"' in text and "NaN" not in text
+    # correlation-preserving scores correlate as the factors do (ten Berge et al. 1999)
+    np.testing.assert_allclose(quality.method(ScoreMethod.CORRELATION_PRESERVING).score_correlations,
+                               quality.factor_correlations, atol=1e-10)
+    # Bartlett scores' reliability is Phi_kk / Var(s_k) (Beauducel 2011), the squared validity
+    model = _model(CORRELATED)
+    W = _weights(model, ScoreMethod.BARTLETT)
+    variance = np.diag(W.T @ model.implied_covariance @ W)
+    np.testing.assert_allclose(quality.method(ScoreMethod.BARTLETT).reliability, np.diag(CORRELATED) / variance, atol=1e-12)

@@ -154,3 +154,23 @@ def test_rows_that_answered_none_of_a_factors_items_are_marked():
     rows[1, :4] = np.nan  # y3 also measures b (cross-loading), so b keeps items; a has none
     rows[2, 4:] = np.nan  # b is still measured by y3
     np.testing.assert_array_equal(without_own_answers(model, rows), [[False, False], [True, False], [False, False]])
+
+
+def test_scores_from_a_full_information_fit_use_its_intercepts_and_each_rows_answers():
+    """A full-information ML fit of the demo survey (which has gaps): its estimated intercepts enter the
+    scores, and rows with gaps match the row-by-row posterior mean of this file."""
+    spec, frame, source = read_inputs(resource_dir("models") / "rider_three_factors.cfa",
+                                      resource_dir("demo") / "rider_survey.csv")
+    groups, _ = moments_for(spec, frame, source, missing="full-information")
+    est = estimate(spec, groups, FitOptions(missing="full-information"))
+    (model,) = score_inputs(est, groups)
+    mats = est.model.matrices(est.theta, 0)
+    np.testing.assert_allclose(model.intercepts, mats.N)
+    rows = frame[list(spec.observed_names)].to_numpy(float)
+    gaps = np.flatnonzero(np.isnan(rows).any(axis=1) & ~np.isnan(rows).all(axis=1))
+    assert len(gaps) >= 5
+    out = score_rows(model, rows)[ScoreMethod.REGRESSION]
+    for i in gaps:
+        mean, sd = _posterior(model, rows[i])
+        np.testing.assert_allclose(out.scores[i], mean, atol=1e-10)
+        np.testing.assert_allclose(out.standard_errors[i], sd, atol=1e-10)

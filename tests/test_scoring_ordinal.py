@@ -213,3 +213,13 @@ def test_one_group_ordinal_inputs_standardize_the_latent_responses_and_a_continu
     total = integrate.quad(density, -10, 10, args=(0,), epsabs=0, epsrel=1e-12, limit=200)[0]
     mean = integrate.quad(density, -10, 10, args=(1,), epsabs=0, epsrel=1e-12, limit=200)[0] / total
     assert eap_scores(model, y[None, :]).scores[0, 0] == pytest.approx(mean, abs=1e-6)  # tolerance from the issue
+
+
+def test_ordinal_items_with_correlated_residuals_are_refused():
+    from cfa_tool.errors import EstimationError
+
+    theta = np.diag([0.36, 0.51, 0.64])
+    theta[0, 1] = theta[1, 0] = 0.1
+    base = _base(np.array([[0.8], [0.7], [0.6]]), np.eye(1), theta=theta)
+    with pytest.raises(EstimationError, match="correlated residuals"):
+        OrdinalScoringModel(base, [np.array([0.0])] * 3, [(0.0, 1.0)] * 3)
