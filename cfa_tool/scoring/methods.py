@@ -35,5 +35,5 @@ class Unscored(Enum):
 
 
 #: determinacy below this is a caution against using the scores for decisions about individuals
-#: (common practice, no single source; Gorsuch 1983 and Grice 2001 discuss .80 and .90)
+#: (common practice, no single source; that Gorsuch 1983 and Grice 2001 discuss .80 and .90 is recalled from memory)
 DETERMINACY_CAUTION = 0.80

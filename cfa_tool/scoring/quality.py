@@ -9,7 +9,7 @@ For complete answers and a linear score s = alpha + W'(x - mu) of factors F (wei
   determinacy rho_k = sqrt((Phi L' Sigma^-1 L Phi)_kk / Phi_kk) (Grice 2001, after Guttman 1955),
   and 2 rho^2 - 1 is the smallest correlation two equally valid sets of scores can have (Guttman 1955);
 * the reliability of a method's scores is the squared correlation of the score with its factor
-  (Beauducel 2011; for Bartlett scores it equals Phi_kk / Var(s_k), the share of the score's variance
+  (Beauducel 2011, as recalled from memory; for Bartlett scores it equals Phi_kk / Var(s_k), the share of the score's variance
   that is the factor's);
 * the correlations among each method's scores, beside the factors' correlations (Grice 2001 compares them:
   regression scores overstate them, Bartlett scores too as a rule, correlation-preserving scores keep them).
