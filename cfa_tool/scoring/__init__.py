@@ -1,0 +1,24 @@
+"""Factor scores: a score per person and factor from a fitted model, and how good the scores are.
+
+The modules are pure functions on one group's fitted matrices:
+
+* :mod:`~cfa_tool.scoring.model`: what the scores need from a fit (:func:`score_inputs`,
+  :func:`ordinal_score_inputs`, :func:`one_group_ordinal_inputs`);
+* :mod:`~cfa_tool.scoring.weights`: regression (Thurstone 1935), Bartlett (1937) and
+  correlation-preserving (Anderson & Rubin 1956; ten Berge et al. 1999) weights per answer pattern;
+* :mod:`~cfa_tool.scoring.linear`: rows scored block by block from their answered items;
+* :mod:`~cfa_tool.scoring.ordinal`: expected a posteriori scores of ordinal items;
+* :mod:`~cfa_tool.scoring.quality`: determinacy, reliability, score correlations, keyed sum scores and omega.
+"""
+
+from cfa_tool.scoring.linear import LinearScorer, ScoreBlock, row_blocks, score_blocks, score_groups, score_rows
+from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod, Unscored
+from cfa_tool.scoring.model import (OrdinalScoringModel, ScoringModel, one_group_ordinal_inputs, ordinal_score_inputs,
+                                    score_inputs, scoring_model, without_own_answers)
+from cfa_tool.scoring.ordinal import EapScorer, PosteriorScores, eap_blocks, eap_scores
+from cfa_tool.scoring.quality import ScoreQuality, score_quality, sum_scores
+
+__all__ = ["DETERMINACY_CAUTION", "EapScorer", "LINEAR_METHODS", "LinearScorer", "OrdinalScoringModel", "PosteriorScores",
+           "ScoreBlock", "ScoreMethod", "ScoreQuality", "ScoringModel", "Unscored", "eap_blocks", "eap_scores",
+           "one_group_ordinal_inputs", "ordinal_score_inputs", "row_blocks", "score_blocks", "score_groups",
+           "score_inputs", "score_quality", "score_rows", "scoring_model", "sum_scores", "without_own_answers"]

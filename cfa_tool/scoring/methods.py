@@ -1,0 +1,39 @@
+"""The vocabulary of factor scores: the methods, and why a score can be absent."""
+
+from __future__ import annotations
+
+from enum import Enum
+
+
+class ScoreMethod(Enum):
+    """How a person's factor scores are computed from their answers (each under its published name)."""
+
+    #: the posterior mean of the factors given the answers (Thurstone 1935): smallest mean squared error
+    REGRESSION = "regression"
+    #: weighted least squares with the residual variances as weights (Bartlett 1937): conditionally unbiased
+    BARTLETT = "bartlett"
+    #: scores whose covariance matrix equals the factors' (Anderson & Rubin 1956 for uncorrelated
+    #: factors; ten Berge, Krijnen, Wansbeek & Shapiro 1999 for correlated ones)
+    CORRELATION_PRESERVING = "correlation-preserving"
+    #: ordinal items: the posterior mean over the latent-response model (expected a posteriori;
+    #: Bock & Aitkin 1981)
+    EXPECTED_A_POSTERIORI = "expected-a-posteriori"
+
+
+LINEAR_METHODS = (ScoreMethod.REGRESSION, ScoreMethod.BARTLETT, ScoreMethod.CORRELATION_PRESERVING)
+
+
+class Unscored(Enum):
+    """Why a cell of a score table is empty."""
+
+    #: the row answered none of the model's items
+    NO_ANSWERS = "no answers on the model's items"
+    #: Bartlett and correlation-preserving scores exist only for factors measured by items directly
+    HIGHER_ORDER = "the method does not apply to a factor measured only through other factors"
+    #: the row's answers do not reach every factor that the method scores jointly
+    TOO_FEW_ANSWERS = "the answered items do not measure every factor the method scores jointly"
+
+
+#: determinacy below this is a caution against using the scores for decisions about individuals
+#: (common practice, no single source; that Gorsuch 1983 and Grice 2001 discuss .80 and .90 is recalled from memory)
+DETERMINACY_CAUTION = 0.80

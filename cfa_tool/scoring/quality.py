@@ -1,0 +1,172 @@
+"""How good the scores are: determinacy, reliability, correlations, and sum scores beside them.
+
+For complete answers and a linear score s = alpha + W'(x - mu) of factors F (weights from
+:mod:`cfa_tool.scoring.weights`), with C = Cov(x, eta) = L Phi:
+
+* Cov(s) = W' Sigma W and Cov(s, eta_F) = W' C_F;
+* the correlation of each score with its factor, corr(s_k, eta_k) = (W'C)_kk / sqrt((W'Sigma W)_kk Phi_kk),
+  is Grice's (2001) validity coefficient; for regression scores it is the factor score
+  determinacy rho_k = sqrt((Phi L' Sigma^-1 L Phi)_kk / Phi_kk) (Grice 2001, after Guttman 1955),
+  and 2 rho^2 - 1 is the smallest correlation two equally valid sets of scores can have (Guttman 1955);
+* the reliability of a method's scores is the squared correlation of the score with its factor
+  (Beauducel 2011, as recalled from memory; for Bartlett scores it equals Phi_kk / Var(s_k), the share of the score's variance
+  that is the factor's);
+* the correlations among each method's scores, beside the factors' correlations (Grice 2001 compares them:
+  regression scores overstate them, Bartlett scores too as a rule, correlation-preserving scores keep them).
+
+Sum scores: the unit-weighted sum of the items that measure a factor (directly or through the
+factors below it), each reverse-keyed item (negative total loading) reversed (its sign flipped), with
+omega of the sum (McDonald 1999): omega = (k'G_f)^2 Phi_ff / k'Sigma k for keys k and total loadings
+G = L A; with every key positive this is the omega of :mod:`cfa_tool.assessment.reliability`.
+A row that misses one of the sum's items gets no sum (a sum over fewer items is on another scale).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from cfa_tool.results import clean
+from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
+from cfa_tool.scoring.model import ScoringModel, checked_covariance
+from cfa_tool.scoring.weights import pattern_weights
+
+
+def _correlation(cov: np.ndarray) -> np.ndarray:
+    sd = np.sqrt(np.clip(np.diag(cov), 0.0, None))
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return cov / np.outer(sd, sd)
+
+
+@dataclass(frozen=True)
+class MethodQuality:
+    """One method's scores of one group, from the model (complete answers)."""
+
+    method: ScoreMethod
+    factors: tuple[str, ...]
+    validity: tuple[float, ...]  # correlation of each score with its factor (Grice 2001); NaN where not scored
+    reliability: tuple[float, ...]  # its square (Beauducel 2011)
+    root_mean_squared_error: tuple[float, ...]  # of the score about its factor
+    score_correlations: np.ndarray  # (m, m) correlations among the scores
+
+    def to_dict(self) -> dict:
+        return clean({"method": self.method.value, "factors": list(self.factors), "validity": list(self.validity),
+                      "reliability": list(self.reliability),
+                      "root_mean_squared_error": list(self.root_mean_squared_error),
+                      "score_correlations": self.score_correlations.tolist()})
+
+
+@dataclass(frozen=True)
+class SumScore:
+    """The keyed unit-weighted sum of one factor's items."""
+
+    factor: str
+    items: tuple[str, ...]
+    reversed_items: tuple[str, ...]  # reverse-keyed (negative total loading): their sign is flipped in the sum
+    omega: float  # McDonald (1999), of the keyed sum
+    validity: float  # correlation of the sum with the factor
+
+    def to_dict(self) -> dict:
+        return clean({"factor": self.factor, "items": list(self.items), "reversed_items": list(self.reversed_items),
+                      "omega": self.omega, "validity": self.validity})
+
+
+@dataclass(frozen=True)
+class ScoreQuality:
+    """Quality of each method's scores for one group (population values under the fitted model)."""
+
+    group: str | None
+    factors: tuple[str, ...]
+    determinacy: tuple[float, ...]  # Grice (2001)
+    low_determinacy: tuple[bool, ...]  # below DETERMINACY_CAUTION
+    factor_correlations: np.ndarray  # (m, m)
+    methods: tuple[MethodQuality, ...]
+    sums: tuple[SumScore, ...]
+
+    def method(self, method: ScoreMethod) -> MethodQuality:
+        return next(q for q in self.methods if q.method is method)
+
+    def to_dict(self) -> dict:
+        return clean({"group": self.group, "factors": list(self.factors), "determinacy": list(self.determinacy),
+                      "low_determinacy": list(self.low_determinacy), "determinacy_caution": DETERMINACY_CAUTION,
+                      "factor_correlations": self.factor_correlations.tolist(),
+                      "methods": [q.to_dict() for q in self.methods], "sums": [s.to_dict() for s in self.sums]})
+
+
+def determinacy(model: ScoringModel) -> np.ndarray:
+    """rho_k = sqrt((Phi L' Sigma^-1 L Phi)_kk / Phi_kk) (Grice 2001)."""
+    sigma = checked_covariance(model)
+    C = model.item_factor_covariance
+    explained = np.einsum("pk,pk->k", C, np.linalg.solve(sigma, C))
+    return np.sqrt(np.clip(explained / np.diag(model.factor_covariance), 0.0, None))
+
+
+def method_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEAR_METHODS) -> tuple[MethodQuality, ...]:
+    """Validity, reliability, error and score correlations of each linear method (complete answers)."""
+    sigma = checked_covariance(model)
+    everything = np.ones((1, model.p), dtype=bool)
+    weights = pattern_weights(model, everything, tuple(methods))
+    phi_diag = np.diag(model.factor_covariance)
+    out = []
+    for method in methods:
+        pw = weights[method]
+        W = np.nan_to_num(pw.weights[0])
+        scored = ~np.isnan(pw.weights[0]).any(axis=0)
+        cov = W.T @ sigma @ W
+        cross = np.diag(W.T @ model.item_factor_covariance)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            validity = np.where(scored, cross / np.sqrt(np.diag(cov) * phi_diag), np.nan)
+        corr = _correlation(cov)
+        corr[~scored, :] = np.nan
+        corr[:, ~scored] = np.nan
+        rmse = np.sqrt(np.clip(np.diagonal(pw.mean_squared_error[0]), 0.0, None))
+        out.append(MethodQuality(method, model.factors, tuple(float(v) for v in validity),
+                                 tuple(float(v) ** 2 for v in validity), tuple(float(v) for v in rmse), corr))
+    return tuple(out)
+
+
+def sum_keys(model: ScoringModel) -> np.ndarray:
+    """(p, m) keys of the sum scores: +1 or -1 for the items that measure each factor (directly or through
+    the factors below it; the sign of the total loading), 0 for the others."""
+    G, L = model.total_loadings, model.loadings
+    reach = model.reach
+    sign = np.where(np.sign(G) != 0, np.sign(G), np.sign(L))
+    return np.where(reach, sign, 0.0)
+
+
+def sum_scores(model: ScoringModel, rows: np.ndarray) -> np.ndarray:
+    """(n, m) keyed unit-weighted sums; NaN where a row misses one of the factor's items."""
+    keys = sum_keys(model)
+    rows = np.asarray(rows, dtype=float)
+    filled = np.where(np.isnan(rows), 0.0, rows)
+    sums = filled @ keys
+    incomplete = np.isnan(rows).astype(float) @ (keys != 0).astype(float) > 0
+    return np.where(incomplete, np.nan, sums)
+
+
+def sum_quality(model: ScoringModel) -> tuple[SumScore, ...]:
+    """Omega (McDonald 1999) and validity of each factor's keyed sum."""
+    sigma = checked_covariance(model)
+    keys = sum_keys(model)
+    G, phi, C = model.total_loadings, model.factor_covariance, model.item_factor_covariance
+    out = []
+    for f, name in enumerate(model.factors):
+        k = keys[:, f]
+        if not k.any():
+            continue
+        variance = float(k @ sigma @ k)
+        omega = float((k @ G[:, f]) ** 2 * phi[f, f] / variance)
+        validity = float(k @ C[:, f] / np.sqrt(variance * phi[f, f]))
+        items = tuple(model.items[i] for i in np.flatnonzero(k))
+        reversed_items = tuple(model.items[i] for i in np.flatnonzero(k < 0))
+        out.append(SumScore(name, items, reversed_items, omega, validity))
+    return tuple(out)
+
+
+def score_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEAR_METHODS) -> ScoreQuality:
+    """Everything :class:`ScoreQuality` holds, for one group."""
+    rho = determinacy(model)
+    return ScoreQuality(model.group, model.factors, tuple(float(v) for v in rho),
+                        tuple(bool(v < DETERMINACY_CAUTION) for v in rho), _correlation(model.factor_covariance),
+                        method_quality(model, methods), sum_quality(model))
