@@ -1,0 +1,19 @@
+"""Exploratory factor analysis: how many factors, extraction, rotation, standard errors of
+rotated loadings, and a draft model in this program's model language.
+
+Pure functions on a :class:`CorrelationInput` (built from ``SampleMoments`` or
+``OrdinalMoments``).  Nothing here reads files or formats reports.
+"""
+
+from cfa_tool.exploration.choices import (CorrelationKind, CountNote, CountRule, ErrorsUnavailable, ExtractionMethod,
+                                          FitStatistic, Placement, RotationMethod)
+from cfa_tool.exploration.correlations import (CorrelationInput, from_correlations, from_covariance, from_ordinal_moments,
+                                               from_sample_moments)
+from cfa_tool.exploration.extraction import FactorSolution, SolutionFit, extract
+from cfa_tool.exploration.rotation import RotatedSolution, RotationSpec, rotate
+
+__all__ = [
+    "CorrelationInput", "CorrelationKind", "CountNote", "CountRule", "ErrorsUnavailable", "ExtractionMethod",
+    "FactorSolution", "FitStatistic", "Placement", "RotatedSolution", "RotationMethod", "RotationSpec", "SolutionFit",
+    "extract", "from_correlations", "from_covariance", "from_ordinal_moments", "from_sample_moments", "rotate",
+]
