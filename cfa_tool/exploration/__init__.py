@@ -10,12 +10,13 @@ from cfa_tool.exploration.choices import (CorrelationKind, CountNote, CountRule,
 from cfa_tool.exploration.correlations import (CorrelationInput, from_correlations, from_covariance, from_ordinal_moments,
                                                from_sample_moments)
 from cfa_tool.exploration.extraction import FactorSolution, SolutionFit, extract
+from cfa_tool.exploration.factor_count import FactorCount, average_partial, count_factors, parallel_analysis
 from cfa_tool.exploration.loading_errors import LoadingErrors, loading_errors
 from cfa_tool.exploration.rotation import RotatedSolution, RotationSpec, rotate
 
 __all__ = [
     "CorrelationInput", "CorrelationKind", "CountNote", "CountRule", "ErrorsUnavailable", "ExtractionMethod",
-    "FactorSolution", "FitStatistic", "LoadingErrors", "Placement", "RotatedSolution", "RotationMethod", "RotationSpec",
-    "SolutionFit", "extract", "from_correlations", "from_covariance", "from_ordinal_moments", "from_sample_moments",
-    "loading_errors", "rotate",
+    "FactorCount", "FactorSolution", "FitStatistic", "LoadingErrors", "Placement", "RotatedSolution", "RotationMethod",
+    "RotationSpec", "SolutionFit", "average_partial", "count_factors", "extract", "from_correlations", "from_covariance",
+    "from_ordinal_moments", "from_sample_moments", "loading_errors", "parallel_analysis", "rotate",
 ]
