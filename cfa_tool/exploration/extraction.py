@@ -210,7 +210,8 @@ def solution_fit(data: CorrelationInput, method: ExtractionMethod, L: np.ndarray
     if data.kind is CorrelationKind.PEARSON:
         log_lik = normal_log_likelihood(R, sigma, N) - 0.5 * N * data.log_variance_sum
         return SolutionFit(FitStatistic.NORMAL_THEORY, discrepancy, T, df, chi_square_p(T, df), 1.0,
-                           rmsea_value(T, df, N), rmsea_interval(T, df, N), log_lik, -2.0 * log_lik + q * np.log(N), srmr, q)
+                           rmsea_value(T, df, N), rmsea_interval(T, df, N), log_lik, float(-2.0 * log_lik + q * np.log(N)), srmr,
+                           q)
     c = scaling_factor(data, L, W, df)
     scaled = T / c if df > 0 else nan
     if df > 0:

@@ -11,7 +11,10 @@ solutions with 1, 2, ... factors; one recommendation with its reasons.
   their mean follow the Wishart distribution W_p(N - 1, I), drawn as T T' with T lower
   triangular, T_ii^2 ~ chi-square(N - i), T_ij ~ N(0, 1) (Bartlett 1933; see Anderson 2003,
   ch. 7), so that a replication costs p^3 rather than N p^2; all replications are
-  decomposed in one batched call.  Seeded.
+  decomposed in one batched call.  Seeded.  With ordinal items the observed eigenvalues are those
+  of the polychoric correlations and the reference still comes from normal data (polychoric
+  correlations of 100 simulated ordinal data sets would take minutes); the result's input kind
+  says so to whoever reports it.
 * Minimum average partial test (Velicer 1976): the average squared partial correlation after
   removing the first 0, 1, 2, ... principal components; the count at its minimum.  The revised
   test (Velicer, Eaton & Fava 2000) averages fourth powers instead.
