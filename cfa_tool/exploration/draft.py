@@ -1,0 +1,165 @@
+"""A draft confirmatory model, in this program's model language, from an exploratory solution.
+
+Each item goes on the factor of its largest pattern loading in absolute value.  Items with
+loadings at or above the threshold (.30 by default, common practice) on two or more factors,
+or on none, are not placed: they are listed in comments for the researcher to decide.  Within a
+factor the items are listed by loading, largest first, so that the first item, which scales the
+factor by default, is the one that loads most strongly.  Factor names are generic (factor1, ...)
+with a comment asking for real names.  A factor left with fewer than two items (or a single
+factor with fewer than three) cannot be identified and is written as a comment.  The text parses
+with ``cfa_tool.language.parser.parse_model`` whenever at least one factor could be written.
+"""
+
+from __future__ import annotations
+
+import re
+import textwrap
+from dataclasses import dataclass
+
+import numpy as np
+
+from cfa_tool.errors import DataError, printable
+from cfa_tool.exploration.choices import Placement
+
+DEFAULT_THRESHOLD = 0.30  # common practice
+_PLAIN_NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
+_LINE = 96
+
+
+@dataclass(frozen=True)
+class ItemPlacement:
+    item: str
+    placement: Placement
+    factor: int  # factor of the largest absolute loading (0-based, in the solution's order)
+    loading: float  # that loading, with its sign
+    salient: tuple[int, ...]  # factors with a loading at or above the threshold in absolute value
+
+
+@dataclass(frozen=True)
+class DraftModel:
+    text: str
+    factor_names: tuple[str, ...]  # one per factor of the solution
+    written: tuple[bool, ...]  # whether each factor became a statement (False: too few items, left as a comment)
+    placements: tuple[ItemPlacement, ...]
+    threshold: float
+
+    @property
+    def usable(self) -> bool:
+        """Whether the text declares at least one factor (and so can be fitted)."""
+        return any(self.written)
+
+
+def model_name(name: str) -> str:
+    """A name as the model language writes it: plain, or in double quotes."""
+    if _PLAIN_NAME.match(name):
+        return name
+    if '"' in name or "\n" in name or "\r" in name:
+        raise DataError(f"the column name '{printable(name)}' contains a double quote or a line break, which the model "
+                        f"language cannot write; rename the column")
+    return f'"{name}"'
+
+
+def factor_names(count: int, items: tuple[str, ...]) -> tuple[str, ...]:
+    """factor1, factor2, ...; an underscore is added while a name would equal an item's."""
+    taken = {name.casefold() for name in items}
+    stem = "factor"
+    while any(f"{stem}{k + 1}".casefold() in taken for k in range(count)):
+        stem += "_"
+    return tuple(f"{stem}{k + 1}" for k in range(count))
+
+
+def place_items(names: tuple[str, ...], pattern: np.ndarray, threshold: float = DEFAULT_THRESHOLD) -> tuple[ItemPlacement, ...]:
+    """Where each item goes (module docstring)."""
+    out = []
+    for name, row in zip(names, np.asarray(pattern, dtype=float)):
+        top = int(np.argmax(np.abs(row)))
+        salient = tuple(int(k) for k in np.flatnonzero(np.abs(row) >= threshold))
+        kind = Placement.ON_FACTOR if len(salient) == 1 else (Placement.NO_LOADING if not salient
+                                                                else Placement.SEVERAL_LOADINGS)
+        out.append(ItemPlacement(name, kind, top, float(row[top]), salient))
+    return tuple(out)
+
+
+def _two(value: float) -> str:
+    text = f"{value:.2f}"
+    return text.replace("0.", ".", 1) if abs(value) < 1 else text
+
+
+def _statement(head: str, items: list[str], prefix: str = "") -> list[str]:
+    lines, line = [], f"{prefix}{head}"
+    for k, item in enumerate(items):
+        piece = item + ("," if k < len(items) - 1 else "")
+        if len(line) + 1 + len(piece) > _LINE and line.strip() != f"{prefix}{head}".strip():
+            lines.append(line)
+            line = prefix + "    " + piece
+        else:
+            line = f"{line} {piece}"
+    lines.append(line)
+    return lines
+
+
+def draft_model(names: tuple[str, ...], pattern: np.ndarray, threshold: float = DEFAULT_THRESHOLD,
+                ordinal: tuple[str, ...] = (), description: str = "") -> DraftModel:
+    """The draft model text (module docstring); ``description`` (one line, e.g. the extraction and
+    rotation used) goes into the first comment; ``ordinal`` names items to declare ordinal."""
+    from cfa_tool import options
+
+    threshold = options.real_number("the loading threshold", threshold, 0.0, 1.0, open_low=True, open_high=True)
+    names = tuple(names)
+    pattern = np.asarray(pattern, dtype=float)
+    m = pattern.shape[1]
+    written_names = {name: model_name(name) for name in names}
+    labels = factor_names(m, names)
+    placements = place_items(names, pattern, threshold)
+    members: list[list[ItemPlacement]] = [[] for _ in range(m)]
+    for item in placements:
+        if item.placement is Placement.ON_FACTOR:
+            members[item.factor].append(item)
+    for group in members:
+        group.sort(key=lambda item: -item.loading)
+    sizes = [len(group) for group in members]
+    written = [size >= 2 for size in sizes]
+    if sum(written) == 1 and sizes[written.index(True)] < 3:
+        written = [False] * m
+    cut = _two(threshold)
+    about = printable(description).strip()
+    heading = "Draft model from an exploratory factor analysis" + (f": {about}" if about else "") + "."
+    lines = ["# " + line for line in textwrap.wrap(heading, _LINE)]
+    lines += ["# The factor names are placeholders: rename each factor for what its items have in common.",
+             "# Each item is on the factor of its largest pattern loading (in absolute value); items are listed by",
+             "# loading, largest first, so the first item, which sets the factor's scale, loads most strongly.",
+             f"# Items with loadings of {cut} or more on several factors, or on none, are listed at the end for you",
+             "# to decide. Fit this model to data other than those explored, or its fit will look better than it is.",
+             ""]
+    for k in range(m):
+        group = members[k]
+        items = [written_names[item.item] for item in group]
+        negative = [written_names[item.item] for item in group if item.loading < 0]
+        if written[k]:
+            lines.extend(_statement(f"factor {labels[k]}:", items))
+            if negative:
+                lines.append(f"# {labels[k]}: negative loading{'s' if len(negative) > 1 else ''} for "
+                             f"{', '.join(negative)} (reverse-worded item{'s' if len(negative) > 1 else ''}?)")
+        elif group:
+            lines.append(f"# {labels[k]} is left out: its {len(group)} item{'s' if len(group) > 1 else ''} "
+                         f"({', '.join(items)}) cannot identify a factor here; decide whether to add items or drop it")
+            lines.extend(_statement(f"factor {labels[k]}:", items, prefix="# "))
+        else:
+            lines.append(f"# {labels[k]} has no item of its own (each item's largest loading is on another factor)")
+    undecided = [item for item in placements if item.placement is not Placement.ON_FACTOR]
+    if undecided:
+        lines += ["", "# For you to decide (not in the model above):"]
+        for item in undecided:
+            row = pattern[names.index(item.item)]
+            if item.placement is Placement.SEVERAL_LOADINGS:
+                loads = ", ".join(f"{labels[k]} {_two(row[k])}" for k in item.salient)
+                lines.append(f"#   {written_names[item.item]}: {loads} (loadings of {cut} or more on several factors)")
+            else:
+                lines.append(f"#   {written_names[item.item]}: largest loading {_two(item.loading)} on {labels[item.factor]} "
+                             f"(no loading of {cut} or more)")
+    placed = [item.item for k, group in enumerate(members) if written[k] for item in group]
+    declared = [written_names[name] for name in names if name in set(ordinal) and name in set(placed)]
+    if declared:
+        lines += [""]
+        lines.extend(_statement("ordinal", declared))
+    return DraftModel("\n".join(lines) + "\n", labels, tuple(written), placements, threshold)

@@ -1,0 +1,131 @@
+"""How many factors: parallel analysis, the minimum average partial test, the fit sequence, and
+the recommendation, on simulated data whose number of factors is known.
+
+Sources: the random-matrix reference (Horn 1965) is drawn through the Bartlett (1933)
+decomposition of the Wishart matrix; under independence a sample correlation has mean 0 and
+variance 1/(N - 1) (Fisher 1915), and the eigenvalues must follow those of correlation matrices
+of actual normal rows.  Squared multiple correlations equal 1 - 1/(R^-1)_ii (Guttman 1940), the
+R^2 of each item regressed on the others.  Partial correlations given components are the
+correlations of the residuals of the items regressed on the component scores (Velicer 1976).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from cfa_tool.exploration import CountNote, CountRule, count_factors, from_covariance
+from cfa_tool.exploration.factor_count import average_partial, random_correlations, reduced
+from tests.conftest import simulate_cfa
+
+
+@pytest.fixture(autouse=True)
+def _one_blas_thread():
+    """Small matrices compute with one BLAS thread, as the tool does (cfa_tool.fitting.blas_threads_for)."""
+    from cfa_tool.fitting import blas_threads_for
+
+    with blas_threads_for(1):
+        yield
+
+
+def _input(frame):
+    return from_covariance(np.cov(frame.to_numpy(float).T, bias=True), len(frame), tuple(frame.columns))
+
+
+def test_random_correlations_follow_normal_data():
+    n, p, reps = 60, 8, 2000
+    rng = np.random.default_rng(1)
+    drawn = random_correlations(n, p, reps, rng)
+    off = drawn[:, np.tril_indices(p, -1)[0], np.tril_indices(p, -1)[1]]
+    assert abs(off.mean()) < 0.003  # mean 0; its standard error is about 0.0007
+    assert off.var() == pytest.approx(1 / (n - 1), rel=0.03)  # Fisher (1915)
+    direct = np.array([np.corrcoef(rng.standard_normal((n, p)).T) for _ in range(reps)])
+    np.testing.assert_allclose(np.linalg.eigvalsh(drawn).mean(axis=0), np.linalg.eigvalsh(direct).mean(axis=0),
+                               rtol=0.02)
+    np.testing.assert_allclose(np.percentile(np.linalg.eigvalsh(drawn)[:, -1], 95),
+                               np.percentile(np.linalg.eigvalsh(direct)[:, -1], 95), rtol=0.03)
+
+
+def test_squared_multiple_correlations_are_regression_r_squared():
+    from sklearn.linear_model import LinearRegression
+
+    X = np.random.default_rng(2).standard_normal((300, 5)) @ np.random.default_rng(3).uniform(0, 1, (5, 5))
+    R = np.corrcoef(X.T)
+    for i in range(5):
+        others = np.delete(X, i, axis=1)
+        assert reduced(R)[i, i] == pytest.approx(LinearRegression().fit(others, X[:, i]).score(others, X[:, i]))
+
+
+def test_average_partial_by_regression_on_component_scores():
+    X = np.random.default_rng(4).standard_normal((400, 6)) @ np.random.default_rng(5).uniform(-1, 1, (6, 6))
+    Z = (X - X.mean(axis=0)) / X.std(axis=0)
+    R = Z.T @ Z / len(Z)
+    values, vectors = np.linalg.eigh(R)
+    scores = Z @ vectors[:, ::-1]
+    found = average_partial(R)
+    for m in range(5):
+        residuals = Z - scores[:, :m] @ np.linalg.lstsq(scores[:, :m], Z, rcond=None)[0] if m else Z
+        partial = np.corrcoef(residuals.T)[~np.eye(6, dtype=bool)]
+        assert found.squared[m] == pytest.approx(np.mean(partial**2), rel=1e-9)
+        assert found.fourth_power[m] == pytest.approx(np.mean(partial**4), rel=1e-9)
+
+
+def _three_factors(extra=None, n=500, seed=21):
+    """Three well-separated factors (five items each, loadings .6-.8, factor correlations .2)."""
+    blocks = [[0.8, 0.7, 0.75, 0.6, 0.65]] * 3
+    L = np.zeros((15, 3))
+    for k, block in enumerate(blocks):
+        L[5 * k:5 * k + 5, k] = block
+    phi = 0.2 + 0.8 * np.eye(3)
+    if extra is not None:  # a weak fourth factor with its own items
+        L = np.vstack([np.hstack([L, np.zeros((15, 1))]), np.hstack([np.zeros((len(extra), 3)), np.array(extra)[:, None]])])
+        phi = np.pad(phi, ((0, 1), (0, 1)))
+        phi[3, 3] = 1.0
+    theta = np.diag(1 - np.sum((L @ phi) * L, axis=1))
+    return simulate_cfa(L, phi, theta, n=n, seed=seed)
+
+
+def test_three_well_separated_factors_are_recovered():
+    found = count_factors(_input(_three_factors()), replications=100, seed=1)
+    assert found.parallel.components == 3
+    assert found.parallel.factors == 3
+    assert found.average_partial.components == 3
+    assert found.recommended == 3
+    assert found.suggestion(CountRule.LOWEST_BIC) == 3
+    assert found.fit_of(3).solution.fit.rmsea < 0.05
+    # the fit sequence runs to the largest count found plus two
+    assert [f.factors for f in found.fits] == [1, 2, 3, 4, 5]
+
+
+def test_weak_factor_is_reported_as_uncertain():
+    # A fourth factor with three items loading .45 (N = 300).  What the rules do here (the same for
+    # seeds 8 to 11): parallel analysis, of components and of factors, finds the weak factor (its
+    # eigenvalue exceeds every random one); the minimum average partial test, its revised form, the
+    # lowest BIC and the fewest factors with close fit stop at 3.  The recommendation, the median of
+    # the three combined rules, is 4, and the disagreement is reported.
+    found = count_factors(_input(_three_factors(extra=[0.45, 0.45, 0.4], n=300, seed=8)), replications=100, seed=1)
+    assert found.suggestion(CountRule.PARALLEL_COMPONENTS) == 4
+    assert found.suggestion(CountRule.PARALLEL_FACTORS) == 4
+    assert found.suggestion(CountRule.AVERAGE_PARTIAL) == 3
+    assert found.suggestion(CountRule.AVERAGE_PARTIAL_REVISED) == 3
+    assert found.suggestion(CountRule.LOWEST_BIC) == 3
+    assert found.recommended == 4
+    assert CountNote.RULES_DISAGREE in found.notes
+    # the rules agree where the factors are strong (previous test) and the note is then absent
+    strong = count_factors(_input(_three_factors()), replications=100, seed=1)
+    assert CountNote.RULES_DISAGREE not in strong.notes
+
+
+def test_no_structure_is_no_factor_above_chance():
+    frame = simulate_cfa(np.zeros((8, 1)), np.eye(1), np.eye(8), n=400, seed=3)
+    found = count_factors(_input(frame), replications=100, seed=2)
+    assert found.parallel.components == 0 and found.average_partial.components == 0
+    assert found.recommended == 1 and CountNote.NO_FACTOR_ABOVE_CHANCE in found.notes
+
+
+def test_parallel_analysis_is_seeded():
+    data = _input(_three_factors())
+    first, again = count_factors(data, 50, seed=9), count_factors(data, 50, seed=9)
+    np.testing.assert_array_equal(first.parallel.component_reference, again.parallel.component_reference)
+    other = count_factors(data, 50, seed=10)
+    assert not np.array_equal(first.parallel.component_reference, other.parallel.component_reference)
