@@ -38,6 +38,8 @@ class FactorBlock:
     rule: np.ndarray
     position: np.ndarray
     value: np.ndarray
+    marker: tuple[np.ndarray, np.ndarray]  # (row, position) of each factor's marker in the stack
+    markers_only: bool  # every factor of the block is scaled by a marker (the usual case)
 
 
 @dataclass(frozen=True)
@@ -51,7 +53,7 @@ class StartPlan:
     higher: tuple[tuple[int, tuple[int, ...], tuple[int, int, float]], ...]
     endogenous: np.ndarray  # bool per factor: loads on a higher-order factor
     has_factor: np.ndarray  # bool per item: has a loading
-    has_items: np.ndarray  # bool per factor: has indicators of its own
+    pairs_with_items: np.ndarray | None  # per factor covariance: both factors have items (None: all do)
     loads: tuple[np.ndarray, np.ndarray, np.ndarray]  # (entries, factor, item) of indicator loadings
     paths: tuple[np.ndarray, np.ndarray, np.ndarray]  # (entries, higher factor, lower factor)
     variances: tuple[np.ndarray, np.ndarray]  # (entries, factor)
@@ -123,7 +125,8 @@ def start_plan(table: ParameterTable) -> StartPlan:
         fs = [f for f, ix in items.items() if len(ix) == n]
         ix = np.array([items[f] for f in fs])
         rule, position, value = (np.array(v) for v in zip(*(rules[f] for f in fs)))
-        blocks.append(FactorBlock(np.array(fs), ix, np.sqrt(n_factors[ix]), rule, position, value))
+        blocks.append(FactorBlock(np.array(fs), ix, np.sqrt(n_factors[ix]), rule, position, value,
+                                  (np.arange(len(fs)), position), bool((rule == 1).all())))
     known = {f for f, ix in items.items() if ix}
     pending = [f for f in range(m) if lower[f]]
     higher = []
@@ -151,9 +154,11 @@ def start_plan(table: ParameterTable) -> StartPlan:
     except np.linalg.LinAlgError:
         solve = np.linalg.pinv(J)
     has_items = np.array([bool(items[f]) for f in range(m)])
-    return StartPlan(tuple(blocks), tuple(higher), endogenous, n_factors > 0, has_items, columns("L", 3), columns("B", 3),
-                     columns("var", 2), columns("cov", 3), columns("res", 2), columns("int", 2), columns("thr", 2), solve,
-                     np.flatnonzero(~np.isnan(table.start)),
+    covariances = columns("cov", 3)
+    with_items = has_items[covariances[1]] & has_items[covariances[2]]
+    return StartPlan(tuple(blocks), tuple(higher), endogenous, n_factors > 0, None if with_items.all() else with_items,
+                     columns("L", 3), columns("B", 3), columns("var", 2), covariances, columns("res", 2),
+                     columns("int", 2), columns("thr", 2), solve, np.flatnonzero(~np.isnan(table.start)),
                      bool(np.isfinite(table.lower).any() or np.isfinite(table.upper).any()))
 
 
@@ -169,15 +174,21 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     for b in plan.blocks:
         ix = b.items
         l_std = _principal_axes(R[ix[:, :, None], ix[:, None, :]]) if ix.shape[1] > 1 else np.full(ix.shape, 0.9)
-        l_std = l_std * _orientation(l_std, l_std * sd[ix], b.rule, b.position, b.value)[:, None]
+        if b.markers_only:  # turn each axis so that the marker's loading has the sign of its fixed value
+            l_std *= np.sign(l_std[b.marker] * b.value)[:, None]
+        else:
+            l_std *= _orientation(l_std, l_std * sd[ix], b.rule, b.position, b.value)[:, None]
         # an item that loads on several factors shares its common variance among them
         std = l_std / b.share
         std_loading[b.factors[:, None], ix] = std
         raw = std * sd[ix]
-        marker = raw[np.arange(len(ix)), b.position] / np.where(b.rule == 1, b.value, 1.0)
-        mean_raw = raw.mean(axis=1)  # effects coding: the loadings average 1
-        mean_raw = np.maximum(mean_raw**2, 0.01 * (raw**2).mean(axis=1))
-        total_var[b.factors] = np.where(b.rule == 0, b.value, np.where(b.rule == 1, marker**2, mean_raw))
+        if b.markers_only:
+            total_var[b.factors] = (raw[b.marker] / b.value) ** 2
+        else:
+            marker = raw[b.marker] / np.where(b.rule == 1, b.value, 1.0)
+            # effects coding: the loadings average 1 (kept away from zero when the items' keys nearly cancel)
+            mean_raw = np.maximum(raw.mean(axis=1) ** 2, 0.01 * (raw**2).mean(axis=1))
+            total_var[b.factors] = np.where(b.rule == 0, b.value, np.where(b.rule == 1, marker**2, mean_raw))
     # each factor as a weighted sum of its items, weights l / l'l: then w_a' R w_b estimates the correlation
     # of two factors with distinct items
     weights = std_loading / np.maximum((std_loading**2).sum(axis=1), 1e-12)[:, None]
@@ -214,9 +225,10 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     target[e] = total_var[f] * np.where(plan.endogenous[f], 0.5, 1.0)
     e, a, b = plan.covariances
     if len(e):
-        # factors reached only through others (higher-order factors) start uncorrelated
-        r = np.where(plan.has_items[a] & plan.has_items[b], (weights @ R @ weights.T)[a, b], 0.0)
-        r = _positive_definite(np.minimum(np.maximum(r, -0.9), 0.9), a, b, m)
+        r = np.clip((weights @ R @ weights.T)[a, b], -0.9, 0.9)
+        if plan.pairs_with_items is not None:  # factors reached only through others (higher-order) start uncorrelated
+            r = np.where(plan.pairs_with_items, r, 0.0)
+        r = _positive_definite(r, a, b, m)
         target[e] = r * np.sqrt(total_var[a] * total_var[b])
     e, x = plan.residuals
     explained = np.minimum((std_loading**2).sum(axis=0), 0.9)
@@ -251,6 +263,8 @@ def _positive_definite(r: np.ndarray, a: np.ndarray, b: np.ndarray, m: int) -> n
     """Factor correlations r (of the pairs a, b) shrunk towards zero as far as needed for their matrix to
     have its smallest eigenvalue at least 0.05 (a matrix with unit diagonal whose rows' other entries
     sum to less than 1 in absolute value is positive definite, Gershgorin 1931, and needs no check)."""
+    if float(np.abs(r).max()) * (m - 1) < 1.0:  # no row's other entries can reach 1
+        return r
     C = np.eye(m)
     C[a, b] = C[b, a] = r
     if np.abs(C).sum(axis=1).max() < 2.0:
@@ -276,4 +290,4 @@ def _principal_axes(R: np.ndarray) -> np.ndarray:
     sign = np.sign(v.sum(axis=1))
     v = v * np.where(sign == 0, 1.0, sign)[:, None]
     loadings = v * np.sqrt(np.maximum(vals[:, -1], 0.05))[:, None]
-    return np.where(loadings < 0, -1.0, 1.0) * np.clip(np.abs(loadings), 0.2, 0.95)
+    return np.copysign(np.clip(np.abs(loadings), 0.2, 0.95), loadings)
