@@ -14,7 +14,7 @@ from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file, summary_moments
-from cfa_tool.errors import ModelError, OptionError
+from cfa_tool.errors import EstimationError, ModelError, OptionError
 from cfa_tool.fitting import FitOptions, fit_moments
 from cfa_tool.language.parser import parse_model, read_model_file
 from cfa_tool.language.spec import Spec
@@ -129,6 +129,10 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ``diagnostics=False`` and ``modification_indices=False`` skip the extras (normality tests,
     reliability, residual and case diagnostics; score tests) in loops that only need estimates,
     standard errors and fit indices.
+
+    A model that does not converge raises :class:`~cfa_tool.errors.EstimationError` (the error the
+    command line reports with exit code 3), whose message says what happened, which parameters
+    misbehaved and what to try; a returned result has always converged, so its ``fit`` is always set.
     """
     fit_options = make_options(options)
     if covariance is not None or (isinstance(data, (str, Path)) and Path(data).suffix.lower() == SUMMARY_SUFFIX):
@@ -144,7 +148,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         check_columns(spec, list(moments.names), moments.source)
         if fit_options.missing != "listwise" or fit_options.test != "normal":
             raise OptionError("summary statistics allow only the normal-theory test with complete data")
-        result = fit_moments(spec, moments, replace(fit_options, diagnostics=False))
+        result = converged(fit_moments(spec, moments, replace(fit_options, diagnostics=False)))
         return replace(result, warnings=tuple(notes) + result.warnings)
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
@@ -153,10 +157,10 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ordinal_items = ordinal_items_of(spec, ordinal)
     if ordinal_items:
         result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
-        return replace(result, warnings=tuple(notes) + result.warnings)
+        return replace(converged(result), warnings=tuple(notes) + result.warnings)
     groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
     notes += group_notes
-    result = fit_moments(spec, groups, fit_options, group_column=group)
+    result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     every_row_complete = (sum(m.n_obs for _, m in groups) == len(frame)
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
     summary = None if every_row_complete else missing_summary(frame, spec.observed_names)
@@ -172,6 +176,13 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                    missing_data=summary if summary is not None and (summary["n_patterns"] > 1
                                                                     or not all(summary["coverage"].values())) else None,
                    labels=labels if labels["variables"] or labels["values"] else None)
+
+
+def converged(result: FitResult) -> FitResult:
+    """``result`` if its estimation converged; otherwise the EstimationError that says why."""
+    if not result.converged:
+        raise EstimationError(f"the estimation did not converge: {result.message}")
+    return result
 
 
 def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: set[str], group: str | None,
@@ -290,7 +301,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     continuous_only(spec, "bootstrap")
     moments = sample_moments(frame, spec.observed_names, source)
-    result = fit_moments(spec, moments, FitOptions())
+    result = converged(fit_moments(spec, moments, FitOptions()))
     order = [moments.names.index(n) for n in result.observed]
     boot = bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, cluster, progress)
     return result, boot
@@ -304,5 +315,5 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
 
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     continuous_only(spec, "cutoffs")
-    result = fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions())
+    result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
     return result, fit_cutoffs(spec, result, replications, seed, workers, cluster, progress)
