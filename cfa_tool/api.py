@@ -9,7 +9,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.groups import split_moments
-from cfa_tool.data.matching import check_columns
+from cfa_tool.data.matching import check_columns, check_declared_ranges
 from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
@@ -75,6 +75,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=()) -
     if keep:
         frame, notes = apply_filters(frame, [parse_filter(k) for k in keep], loaded.source)
     check_columns(spec, columns, loaded.source)
+    check_declared_ranges(spec, frame, loaded.source)
     return spec, LoadedData(frame, loaded.source, loaded.variable_labels, loaded.value_labels), notes
 
 

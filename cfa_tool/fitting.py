@@ -18,7 +18,7 @@ from cfa_tool.assessment.fit_indices import fit_indices, srmr_value
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
 from cfa_tool.assessment.modification import modification_indices
 from cfa_tool.assessment.normality import mardia
-from cfa_tool.assessment.reliability import reliability
+from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.data.groups import pooled
@@ -294,9 +294,12 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 sample_mean=gm.mean,
                 implied_mean=mats[g].implied_mean() if means else None,
                 normality=mardia(gm.rows) if options.diagnostics and gm.rows is not None else None,
-                **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics),
+                **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics,
+                                     spec.reverse_keyed or None),
             )
         )
+    for g, result in enumerate(group_results):
+        warnings.extend(keying_warnings(result.reliability, f"group '{table.groups[g]}': " if multi else ""))
     first = groups[0][1]
     if multi:
         pooled_cov, pooled_mean = pooled([m for _, m in groups])
@@ -359,11 +362,13 @@ def estimate_rows(table: ParameterTable, values: np.ndarray, inference, std_all:
     return tuple(rows)
 
 
-def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool) -> dict:
-    """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often)."""
+def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool,
+                       declared: dict[str, tuple[float, float]] | None) -> dict:
+    """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often);
+    ``declared``: the reverse-keyed items of a 'reversed' statement, if any."""
     if not wanted:
         return {}
-    factors, htmt = reliability(mats, table.observed, table.latent, gm.covariance)
+    factors, htmt = reliability(mats, table.observed, table.latent, gm.covariance, gm.mean, declared, gm.n_obs)
     out = {"reliability": tuple(factors), "htmt": tuple(htmt),
            "normalized_residuals": normalized_residuals(gm.covariance, sigma, gm.n_obs)}
     if gm.rows is not None and not np.isnan(gm.rows).any():

@@ -21,7 +21,7 @@ from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.fit_indices import FitIndices, chi_square_p, cfi_value, rmsea_interval, rmsea_value, tli_value
 from cfa_tool.assessment.identification import check_information_rank
 from cfa_tool.assessment.modification import ModificationIndex, candidate_arrays, candidate_entries
-from cfa_tool.assessment.reliability import reliability
+from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.errors import CfaError, OptionError
 from cfa_tool.estimation.dwls import (AdjustedTest, WeightedLeastSquares, adjusted_statistics, adjusted_test,
@@ -180,7 +180,10 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
     derived = frozenset(e for e, par in enumerate(table.parameters)
                         if par.kind == "residual_variance" and par.variables[0] in derived_items)
     estimates = estimate_rows(table, values, inference, std_all, std_lv, derived)
-    factors, htmt = reliability(final, table.observed, table.latent, R)
+    factors, htmt = reliability(final, table.observed, table.latent, R, declared=spec.reverse_keyed or None,
+                                sum_scores=False)
+    if opt.converged:
+        warnings.extend(keying_warnings(factors))
     summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
                           tuple(float(moments.means[k]) for k in order), tuple(float(moments.sds[k]) for k in order))
     if moments.continuous:
@@ -380,7 +383,10 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         rho = sigma / np.outer(sd, sd)
         summary = DataSummary(mg.source, mg.rows_read, mg.rows_dropped, mg.n_obs, table.observed,
                               tuple(float(v) for v in mg.means), tuple(float(v) for v in mg.sds))
-        factors, htmt = reliability(mats[g], table.observed, table.latent, mg.correlations)
+        factors, htmt = reliability(mats[g], table.observed, table.latent, mg.correlations,
+                                    declared=spec.reverse_keyed or None, sum_scores=False)
+        if est.converged:
+            warnings.extend(keying_warnings(factors, f"group {lab}: "))
         group_results.append(GroupResult(lab, summary, shares[g], srmrs[g],
                                          dict(zip(table.observed, (float(v) for v in r_squared(mats[g])))),
                                          mg.correlations, rho, mg.correlations - rho, np.zeros(p), None, None,

@@ -55,6 +55,15 @@ def test_simulation_recovers_population_values():
     assert np.allclose(variances[["y4", "y7", "y8"]], 1.0, atol=0.05)  # defaults give unit item variances
 
 
+def test_reverse_keyed_items_take_negative_default_loadings():
+    # a: the marker of f, reverse-keyed, so f points the reversed way and b, d (worded with the trait) load
+    # negatively on it; h is reversed in g, whose marker e is not (signs by construction of the defaults)
+    spec = parse_model("factor f: a, b, c, d\nfactor g: e, h, i\nreversed a, c, h on 1 to 5\n")
+    theta = dict(zip(*[(population := population_from_spec(spec)).table.free_labels, population.theta]))
+    assert {k: v for k, v in theta.items() if k.startswith("loading")} == {
+        "loading(f, b)": -0.7, "loading(f, c)": 0.7, "loading(f, d)": -0.7, "loading(g, h)": -0.7, "loading(g, i)": 0.7}
+
+
 def test_simulated_ordinal_and_missing_data():
     data = simulate(parse_model(POPULATION), 3000, seed=5, categories=5, missing=0.1)
     values = data.to_numpy()

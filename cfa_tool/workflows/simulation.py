@@ -1,10 +1,12 @@
 """Population models and simulated data.
 
 Population values come from the model file: ``start`` (or ``fix``) statements
-give them; any free parameter without one takes a default: loadings 0.7,
-factor variances 1, factor covariances 0.3, residual covariances 0, and each
-indicator's residual variance set so that its total variance is 1 (0.1 when
-the loadings already exceed that).
+give them; any free parameter without one takes a default: loadings 0.7
+(-0.7 for an item declared reverse-keyed by a ``reversed`` statement, signs
+turned around in a factor whose marker is reverse-keyed), factor variances 1,
+factor covariances 0.3, residual covariances 0, and each indicator's residual
+variance set so that its total variance is 1 (0.1 when the loadings already
+exceed that).
 """
 
 from __future__ import annotations
@@ -41,9 +43,16 @@ def population_from_spec(spec: Spec) -> Population:
     model = StructuredModel(table)
     theta = table.start.copy()
     kind_of: dict[int, str] = {}
+    sign_of: dict[int, float] = {}  # default loadings of reverse-keyed items point the other way
+    keyed = spec.reverse_keyed
+    marker_key = {par.variables[0]: (-1.0 if par.variables[1] in keyed else 1.0) for par in table.parameters
+                  if par.kind == "loading" and not par.free and par.offset != 0.0}
     for par in table.parameters:
         if len(par.terms) == 1:
             kind_of.setdefault(par.terms[0][0], par.kind)
+            if par.kind == "loading":
+                f, x = par.variables
+                sign_of.setdefault(par.terms[0][0], (-1.0 if x in keyed else 1.0) * marker_key.get(f, 1.0))
     defaulted = []
     residual_slots = []
     for k in range(table.n_free):
@@ -53,7 +62,7 @@ def population_from_spec(spec: Spec) -> Population:
                 residual_slots.append(k)
                 theta[k] = 0.0
             else:
-                theta[k] = DEFAULTS.get(kind, 0.0)
+                theta[k] = DEFAULTS.get(kind, 0.0) * sign_of.get(k, 1.0)
             defaulted.append(table.free_labels[k])
     if residual_slots:
         common = np.diag(model.implied(theta))
