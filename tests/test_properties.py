@@ -185,3 +185,26 @@ def test_closed_form_hessian_equals_differences_of_the_gradient(hs_data, extra):
     numeric = difference_hessian(est.likelihood.gradient, theta, central=True)
     assert np.allclose(closed, numeric, atol=1e-6 * np.abs(numeric).max())
     assert not np.allclose(closed, est.likelihood.evaluate(theta).information, atol=1e-4)  # not the expected one
+
+
+@pytest.mark.parametrize("text", [
+    "factor f: y1..y4\nfactor g: y5..y8\n",
+    # higher-order paths, an item on two factors, a residual covariance, equal loadings and effects coding
+    "factor f: y1..y4\nfactor g: y5..y8\nfactor k: y9..y12, y1\nfactor h: f, g, k\n"
+    "equal loading(f, y2), loading(f, y3)\ncovary y5, y6\nscale g by effects\n",
+])
+def test_least_squares_derivatives_equal_the_full_derivative_matrices(text):
+    # d rho / d theta of the ordinal least-squares objective, gathered from the rank-two basis, against the
+    # below-diagonal elements of the (q, p, p) derivative matrices of the general path (Neudecker & Satorra 1991)
+    from cfa_tool.estimation.dwls import WeightedLeastSquares
+    from cfa_tool.language import parse_model
+    from cfa_tool.model.implied import StructuredModel
+    from cfa_tool.model.parameters import build_parameter_table
+
+    table = build_parameter_table(parse_model(text))
+    model = StructuredModel(table)
+    n_pairs = table.p * (table.p - 1) // 2
+    ls = WeightedLeastSquares(model, np.zeros(n_pairs), np.ones(n_pairs), 100)
+    theta = 0.5 + 0.3 * np.random.default_rng(8).normal(size=table.n_free)
+    d_sigma, _ = model.jacobian(theta)
+    np.testing.assert_allclose(ls.jacobian(theta), d_sigma[:, ls.pairs[0], ls.pairs[1]], rtol=0, atol=1e-12)

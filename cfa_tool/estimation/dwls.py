@@ -21,6 +21,7 @@ from cfa_tool import distributions as dist
 from cfa_tool.estimation.linalg import scaled_inverse
 from cfa_tool.estimation.ml import Evaluation
 from cfa_tool.model.implied import StructuredModel
+from cfa_tool.model.rank_two import basis_vectors
 
 
 class WeightedLeastSquares:
@@ -38,8 +39,14 @@ class WeightedLeastSquares:
         return float(resid @ (self.w * resid))
 
     def jacobian(self, theta: np.ndarray) -> np.ndarray:
-        d_sigma, _ = self.model.jacobian(theta)
-        return d_sigma[:, self.pairs[0], self.pairs[1]]  # (q, pairs)
+        """d rho / d theta, shape (q, pairs).  Each entry's derivative of Sigma is c (u v' + v u') for
+        columns u, v of V = [I, C', G] (:mod:`cfa_tool.model.rank_two`), so its element (i, j) is
+        c (V_iu V_jv + V_iv V_ju): gathered for the pairs below the diagonal, without p x p arrays."""
+        V, _ = basis_vectors(self.model.matrices(theta), False)
+        basis = self.model.bases[0]
+        Vi, Vj = V[self.pairs[0]], V[self.pairs[1]]
+        D = basis.c * (Vi[:, basis.u] * Vj[:, basis.v] + Vi[:, basis.v] * Vj[:, basis.u])  # (pairs, active entries)
+        return D.T if self.model.identity_J[0] else self.model.active_J[0].T @ D.T
 
     def evaluate(self, theta: np.ndarray) -> Evaluation:
         resid = self.r - self.model.implied(theta)[self.pairs]
