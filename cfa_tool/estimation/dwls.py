@@ -48,6 +48,11 @@ class WeightedLeastSquares:
         D = basis.c * (Vi[:, basis.u] * Vj[:, basis.v] + Vi[:, basis.v] * Vj[:, basis.u])  # (pairs, active entries)
         return D.T if self.model.identity_J[0] else self.model.active_J[0].T @ D.T
 
+    def gradient(self, theta: np.ndarray) -> np.ndarray:
+        """-2 D W (r - rho): what differences of the gradient (Newton's steps near the minimum) need."""
+        resid = self.r - self.model.implied(theta)[self.pairs]
+        return -2.0 * self.jacobian(theta) @ (self.w * resid)
+
     def evaluate(self, theta: np.ndarray) -> Evaluation:
         resid = self.r - self.model.implied(theta)[self.pairs]
         D = self.jacobian(theta)
