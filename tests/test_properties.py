@@ -208,3 +208,27 @@ def test_least_squares_derivatives_equal_the_full_derivative_matrices(text):
     theta = 0.5 + 0.3 * np.random.default_rng(8).normal(size=table.n_free)
     d_sigma, _ = model.jacobian(theta)
     np.testing.assert_allclose(ls.jacobian(theta), d_sigma[:, ls.pairs[0], ls.pairs[1]], rtol=0, atol=1e-12)
+
+
+@pytest.mark.parametrize("text", [
+    "factor f: y1..y4\nfactor g: y5..y8\n",
+    "factor f: y1..y4\nfactor g: y5..y8\nfactor k: y9..y12, y1\nequal loading(f, y2), loading(f, y3)\ncovary y5, y6\n"
+    "scale g by effects\n",
+])
+def test_least_squares_hessian_equals_differences_of_the_gradient(text):
+    # the closed-form second derivatives of the ordinal least-squares discrepancy against central differences of
+    # its analytic gradient, away from the minimum (residuals and weights drawn at random)
+    from cfa_tool.estimation.dwls import WeightedLeastSquares
+    from cfa_tool.estimation.linalg import difference_hessian
+    from cfa_tool.language import parse_model
+    from cfa_tool.model.implied import StructuredModel
+    from cfa_tool.model.parameters import build_parameter_table
+
+    table = build_parameter_table(parse_model(text))
+    model = StructuredModel(table)
+    n_pairs = table.p * (table.p - 1) // 2
+    rng = np.random.default_rng(2)
+    ls = WeightedLeastSquares(model, rng.uniform(-0.3, 0.6, n_pairs), rng.uniform(0.5, 2.0, n_pairs), 100)
+    theta = 0.5 + 0.3 * rng.normal(size=table.n_free)
+    numeric = difference_hessian(ls.gradient, theta, central=True)
+    assert np.allclose(ls.observed_hessian(theta), numeric, atol=1e-6 * np.abs(numeric).max())

@@ -21,7 +21,7 @@ from cfa_tool import distributions as dist
 from cfa_tool.estimation.linalg import scaled_inverse
 from cfa_tool.estimation.ml import Evaluation
 from cfa_tool.model.implied import StructuredModel
-from cfa_tool.model.rank_two import basis_vectors
+from cfa_tool.model.rank_two import basis_vectors, second_derivative_contraction
 
 
 class WeightedLeastSquares:
@@ -52,6 +52,29 @@ class WeightedLeastSquares:
         """-2 D W (r - rho): what differences of the gradient (Newton's steps near the minimum) need."""
         resid = self.r - self.model.implied(theta)[self.pairs]
         return -2.0 * self.jacobian(theta) @ (self.w * resid)
+
+    def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
+        """Second derivatives of F in closed form (None with higher-order factors):
+
+            H = 2 D W D' - 2 tr(M d2Sigma / dtheta dtheta'),   M_ij = M_ji = w_k e_k / 2 for the pair k = (i, j),
+
+        e = r - rho the residuals; the second derivatives of Sigma are those of maximum likelihood
+        (Neudecker & Satorra 1991; :func:`cfa_tool.model.rank_two.second_derivative_contraction`)."""
+        model = self.model
+        if model.higher_order:
+            return None
+        mats = model.matrices(theta)
+        half = 0.5 * self.w * (self.r - mats.implied_covariance()[self.pairs])
+        M = np.zeros((model.p, model.p))
+        M[self.pairs] = half
+        M[self.pairs[1], self.pairs[0]] = half
+        second = second_derivative_contraction(model.second_orders[0], M, mats.L, mats.P)
+        if not model.identity_J[0]:
+            J = model.active_J[0]
+            second = J.T @ second @ J
+        D = self.jacobian(theta)
+        H = 2.0 * (D * self.w) @ D.T - 2.0 * second
+        return 0.5 * (H + H.T)
 
     def evaluate(self, theta: np.ndarray) -> Evaluation:
         resid = self.r - self.model.implied(theta)[self.pairs]
