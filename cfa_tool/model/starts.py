@@ -261,13 +261,14 @@ def _orientation(loadings: np.ndarray, raw: np.ndarray, rule: np.ndarray, positi
 
 def _positive_definite(r: np.ndarray, a: np.ndarray, b: np.ndarray, m: int) -> np.ndarray:
     """Factor correlations r (of the pairs a, b) shrunk towards zero as far as needed for their matrix to
-    have its smallest eigenvalue at least 0.05 (a matrix with unit diagonal whose rows' other entries
-    sum to less than 1 in absolute value is positive definite, Gershgorin 1931, and needs no check)."""
-    if float(np.abs(r).max()) * (m - 1) < 1.0:  # no row's other entries can reach 1
+    have its smallest eigenvalue at least 0.05 (no eigenvalue of a matrix with unit diagonal lies further
+    from 1 than the largest sum of a row's other entries in absolute value, Gershgorin 1931, so when
+    those sums stay below 0.95 no check is needed)."""
+    if float(np.abs(r).max()) * (m - 1) < 0.95:  # no row's other entries can sum to 0.95
         return r
     C = np.eye(m)
     C[a, b] = C[b, a] = r
-    if np.abs(C).sum(axis=1).max() < 2.0:
+    if np.abs(C).sum(axis=1).max() < 1.95:
         return r
     smallest = np.linalg.eigvalsh(C)[0]
     return r if smallest >= 0.05 else r * (0.95 / (1.0 - smallest))
