@@ -10,13 +10,13 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.groups import label_notes, split_moments
-from cfa_tool.data.matching import check_columns
+from cfa_tool.data.matching import check_columns, check_declared_ranges
 from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file, summary_moments
 from cfa_tool import options as opt
-from cfa_tool.errors import ModelError, OptionError, printable
+from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
 from cfa_tool.fitting import FitOptions, fit_moments
 from cfa_tool.ordinal_fitting import ORDINAL_METHODS
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
@@ -136,6 +136,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=()) -
     if keep:
         frame, notes = apply_filters(frame, [parse_filter(k) for k in keep], loaded.source)
     check_columns(spec, columns, loaded.source)
+    check_declared_ranges(spec, frame, loaded.source)
     return spec, replace(loaded, frame=frame), notes
 
 
@@ -192,6 +193,10 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ``diagnostics=False`` and ``modification_indices=False`` skip the extras (normality tests,
     reliability, residual and case diagnostics; score tests) in loops that only need estimates,
     standard errors and fit indices.
+
+    A model that does not converge raises :class:`~cfa_tool.errors.EstimationError` (the error the
+    command line reports with exit code 3), whose message says what happened, which parameters
+    misbehaved and what to try; a returned result has always converged, so its ``fit`` is always set.
     """
     fit_options = make_options(options)
     if covariance is None:
@@ -216,7 +221,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         check_columns(spec, list(moments.names), moments.source)
         if fit_options.missing == "full-information" or fit_options.test != "normal":
             raise OptionError("summary statistics allow only the normal-theory test with complete data")
-        result = fit_moments(spec, moments, replace(fit_options, diagnostics=False))
+        result = converged(fit_moments(spec, moments, replace(fit_options, diagnostics=False)))
         return _described(replace(result, warnings=tuple(notes) + result.warnings), spec, None)
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
@@ -227,12 +232,13 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     if ordinal_items:
         result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
         labels = tuple(g.label for g in result.groups) if group is not None else None
-        return _described(replace(result, warnings=tuple(notes) + result.warnings), spec, labels, ordinal_items)
+        return _described(replace(converged(result), warnings=tuple(notes) + result.warnings), spec, labels,
+                          ordinal_items)
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
     notes = missing_notes + notes
     groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
     notes += group_notes
-    result = fit_moments(spec, groups, fit_options, group_column=group)
+    result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     every_row_complete = (sum(m.n_obs for _, m in groups) == len(frame)
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
     summary = None if every_row_complete else missing_summary(frame, spec.observed_names)
@@ -277,6 +283,13 @@ def _described(result: FitResult, spec: Spec, groups: tuple[str, ...] | None, or
 
     ordinal = {x: 1 for x in ordinal_items} if groups is not None else None  # thresholds do not change the description
     return replace(result, description=describe(spec, build_parameter_table(spec, groups, ordinal=ordinal)))
+
+
+def converged(result: FitResult) -> FitResult:
+    """``result`` if its estimation converged; otherwise the EstimationError that says why."""
+    if not result.converged:
+        raise EstimationError(f"the estimation did not converge: {result.message}")
+    return result
 
 
 def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: set[str], group: str | None,
@@ -451,7 +464,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     continuous_only(spec, "bootstrap")
     moments = sample_moments(frame, spec.observed_names, source)
-    result = fit_moments(spec, moments, FitOptions())
+    result = converged(fit_moments(spec, moments, FitOptions()))
     order = [moments.names.index(n) for n in result.observed]
     boot = bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, cluster, progress)
     return result, boot
@@ -466,5 +479,5 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     replications, seed = cutoff_options(replications, seed, workers)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     continuous_only(spec, "cutoffs")
-    result = fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions())
+    result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
     return result, fit_cutoffs(spec, result, replications, seed, workers, cluster, progress)

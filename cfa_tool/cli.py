@@ -571,12 +571,7 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
                  missing_codes=args.missing_codes, keep=args.keep, information=args.information,
                  mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=args.test,
                  missing=args.missing, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
-    if not result.converged:
-        raise EstimationError(
-            f"the estimation did not converge ({result.message}); try start values closer to the expected solution "
-            f"('start ...' statements), check the data for extreme values, or simplify the model"
-        )
-    return _emit(args, result, render)
+    return _emit(args, result, render)  # a model that does not converge raises EstimationError (exit 3)
 
 
 if __name__ == "__main__":  # pragma: no cover

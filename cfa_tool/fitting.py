@@ -12,28 +12,30 @@ from functools import lru_cache
 import numpy as np
 
 from cfa_tool.assessment.admissibility import admissibility_warnings
+from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, normalized_residuals
 from cfa_tool.assessment.fit_indices import fit_indices, srmr_value
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
 from cfa_tool.assessment.modification import modification_indices
 from cfa_tool.assessment.normality import mardia
-from cfa_tool.assessment.reliability import reliability
+from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import CfaError, OptionError
 from cfa_tool.data.moments import MISSING_CHOICES
 from cfa_tool.estimation.fiml import MissingDataLikelihood, fiml_baseline, fiml_log_likelihood
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
 from cfa_tool.estimation.patterns import pattern_data
-from cfa_tool.estimation.optimizer import minimise
+from cfa_tool.estimation.strategy import Alternative, search
 from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
 from cfa_tool.inference.standard_errors import observed_information, parameter_covariance, wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
+from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult
 
@@ -115,23 +117,41 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     """Build the model and minimise the ML discrepancy (no standard errors, no indices)."""
     multi = len(groups) > 1 or groups[0][0] is not None
     fiml = options.missing == "full-information"
-    table, model = model_structure(spec, tuple(label for label, _ in groups) if multi else None, fiml)
+    labels = tuple(label for label, _ in groups) if multi else None
+    table, model = model_structure(spec, labels, fiml)
     moments = [ordered_moments(m, table.observed) for _, m in groups]
     if fiml:
         patterns = [pattern_data(gm.rows) for gm in moments]
-        likelihood = MissingDataLikelihood(model, patterns, [(gm.mean, gm.covariance) for gm in moments],
-                                           [GroupMoments(gm.covariance, gm.mean, gm.n_obs) for gm in moments])
-    else:
-        likelihood = NormalLikelihood(model, moments)
-    if start is None or len(start) != table.n_free:
+        saturated = [(gm.mean, gm.covariance) for gm in moments]
+        summaries = [GroupMoments(gm.covariance, gm.mean, gm.n_obs) for gm in moments]
+
+    def likelihood_of(model: StructuredModel) -> NormalLikelihood | MissingDataLikelihood:
+        if fiml:
+            return MissingDataLikelihood(model, patterns, saturated, summaries)
+        return NormalLikelihood(model, moments)
+
+    def pooled_moments() -> tuple[np.ndarray, np.ndarray]:
         cov, mean = pooled([m for _, m in groups])
         if tuple(groups[0][1].names) != table.observed:
             order = [groups[0][1].names.index(n) for n in table.observed]
             cov, mean = cov[np.ix_(order, order)], mean[order]
-        start = starting_values(table, cov, mean)
-    opt = minimise(likelihood.evaluate, likelihood.value, start, table.lower, table.upper, options.max_iterations,
-                   gradient=likelihood.gradient, hessian=getattr(likelihood, "observed_hessian", None))
-    return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, opt.message)
+        return cov, mean
+
+    def variance_scaled_problem() -> Alternative | None:
+        alt_spec = variance_scaled(spec, table)
+        try:
+            alt_table, alt_model = model_structure(alt_spec, labels, fiml)
+        except CfaError:  # e.g. a freed factor variance, which variance scaling would fix
+            return None
+        return Alternative(alt_table, alt_model, likelihood_of(alt_model), starting_values(alt_table, *pooled_moments()))
+
+    likelihood = likelihood_of(model)
+    if start is None or len(start) != table.n_free:
+        start = starting_values(table, *pooled_moments())
+    found = search(likelihood, table, start, options.max_iterations, variance_scaled_problem)
+    opt = found.result
+    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations)
+    return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, message)
 
 
 @lru_cache(maxsize=16)
@@ -298,9 +318,12 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 sample_mean=gm.mean,
                 implied_mean=mats[g].implied_mean() if means else None,
                 normality=mardia(gm.rows) if options.diagnostics and gm.rows is not None else None,
-                **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics),
+                **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics,
+                                     spec.reverse_keyed or None),
             )
         )
+    for g, result in enumerate(group_results):
+        warnings.extend(keying_warnings(result.reliability, f"group '{table.groups[g]}': " if multi else ""))
     first = groups[0][1]
     if multi:
         pooled_cov, pooled_mean = pooled([m for _, m in groups])
@@ -363,11 +386,13 @@ def estimate_rows(table: ParameterTable, values: np.ndarray, inference, std_all:
     return tuple(rows)
 
 
-def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool) -> dict:
-    """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often)."""
+def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool,
+                       declared: dict[str, tuple[float, float]] | None) -> dict:
+    """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often);
+    ``declared``: the reverse-keyed items of a 'reversed' statement, if any."""
     if not wanted:
         return {}
-    factors, htmt = reliability(mats, table.observed, table.latent, gm.covariance)
+    factors, htmt = reliability(mats, table.observed, table.latent, gm.covariance, gm.mean, declared, gm.n_obs)
     out = {"reliability": tuple(factors), "htmt": tuple(htmt),
            "normalized_residuals": normalized_residuals(gm.covariance, sigma, gm.n_obs)}
     if gm.rows is not None and not np.isnan(gm.rows).any():

@@ -17,15 +17,16 @@ from dataclasses import replace as dc_replace
 import numpy as np
 
 from cfa_tool.assessment.admissibility import admissibility_warnings
+from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.fit_indices import FitIndices, chi_square_p, cfi_value, rmsea_interval, rmsea_value, tli_value
 from cfa_tool.assessment.identification import check_information_rank
 from cfa_tool.assessment.modification import ModificationIndex, candidate_arrays, candidate_entries
-from cfa_tool.assessment.reliability import reliability
+from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import CfaError, OptionError
 from cfa_tool.estimation.dwls import (AdjustedTest, WeightedLeastSquares, adjusted_statistics, adjusted_test,
                                       residual_weights, robust_covariance)
-from cfa_tool.estimation.optimizer import minimise
+from cfa_tool.estimation.strategy import Alternative, search
 from cfa_tool.estimation.ordinal import GroupedOrdinalLeastSquares, least_squares_score_tests
 from cfa_tool.inference.robust import RobustFit
 from cfa_tool.inference.standard_errors import wald_inference
@@ -33,6 +34,7 @@ from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import ParameterRef, Spec, ValueSetting
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
+from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.fitting import estimate_rows
 from cfa_tool.results import DataSummary, FitResult, GroupResult
@@ -120,8 +122,19 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
     weights = 1.0 / np.diag(gamma) if method == "diagonally-weighted" else np.ones(len(take))
     model = StructuredModel(table)
     ls = WeightedLeastSquares(model, R[pairs], weights, moments.n_obs)
-    start = starting_values(table, R, None)
-    opt = minimise(ls.evaluate, ls.value, start, table.lower, table.upper, options.max_iterations)
+
+    def variance_scaled_problem() -> Alternative | None:
+        try:
+            alt_table = build_parameter_table(variance_scaled(fixed_spec, table))
+        except CfaError:  # e.g. a freed factor variance, which variance scaling would fix
+            return None
+        alt_model = StructuredModel(alt_table)
+        return Alternative(alt_table, alt_model, WeightedLeastSquares(alt_model, R[pairs], weights, moments.n_obs),
+                           starting_values(alt_table, R, None))
+
+    found = search(ls, table, starting_values(table, R, None), options.max_iterations, variance_scaled_problem)
+    opt = found.result
+    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations)
     theta = opt.theta
     n = moments.n_obs
     mats = model.matrices(theta)
@@ -163,11 +176,14 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
         warnings.extend(admissibility_warnings(final, table.observed, table.latent))
         warnings.append(ORDINAL_NOTE)
     else:
-        warnings.append(f"the estimation did not converge ({opt.message}); no result from it should be interpreted")
+        warnings.append(f"the estimation did not converge ({message}); no result from it should be interpreted")
     derived = frozenset(e for e, par in enumerate(table.parameters)
                         if par.kind == "residual_variance" and par.variables[0] in derived_items)
     estimates = estimate_rows(table, values, inference, std_all, std_lv, derived)
-    factors, htmt = reliability(final, table.observed, table.latent, R)
+    factors, htmt = reliability(final, table.observed, table.latent, R, declared=spec.reverse_keyed or None,
+                                sum_scores=False)
+    if opt.converged:
+        warnings.extend(keying_warnings(factors))
     summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
                           tuple(float(moments.means[k]) for k in order), tuple(float(moments.sds[k]) for k in order))
     if moments.continuous:
@@ -181,7 +197,7 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
         estimator=f"{label} least squares on polychoric correlations (ordinal items"
                   + (", with polyserial correlations for continuous items" if moments.continuous else "")
                   + "), robust standard errors",
-        converged=opt.converged, iterations=opt.iterations, message=opt.message, n_obs=n, data=summary,
+        converged=opt.converged, iterations=opt.iterations, message=message, n_obs=n, data=summary,
         observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
         modification_indices=tuple(modification), groups=(group,), warnings=tuple(warnings), mi_threshold=options.mi_threshold,
         mi_top=options.mi_top, theta=theta,
@@ -235,13 +251,25 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: str = "di
                           f"give only {n_stats} statistics, so it cannot be identified")
     model = StructuredModel(table)
     objective = GroupedOrdinalLeastSquares(model, moments, method)
+    weights = objective.weights
+    R = sum(w * m.correlations for w, m in zip(weights, moments))
+    tau = sum(w * m.stacked_thresholds for w, m in zip(weights, moments))
+
+    def variance_scaled_problem() -> Alternative | None:
+        try:
+            alt_table = build_parameter_table(variance_scaled(spec, table), labels, ordinal=n_thresholds)
+        except CfaError:  # e.g. a freed factor variance, which variance scaling would fix
+            return None
+        alt_model = StructuredModel(alt_table)
+        return Alternative(alt_table, alt_model, GroupedOrdinalLeastSquares(alt_model, moments, method),
+                           starting_values(alt_table, R, np.zeros(len(observed)), thresholds=tau))
+
     if start is None or len(start) != table.n_free:
-        weights = objective.weights
-        R = sum(w * m.correlations for w, m in zip(weights, moments))
-        tau = sum(w * m.stacked_thresholds for w, m in zip(weights, moments))
         start = starting_values(table, R, np.zeros(len(observed)), thresholds=tau)
-    opt = minimise(objective.evaluate, objective.value, start, table.lower, table.upper, options.max_iterations)
-    return OrdinalEstimation(table, model, objective, opt.theta, opt.value, opt.converged, opt.iterations, opt.message)
+    found = search(objective, table, start, options.max_iterations, variance_scaled_problem)
+    opt = found.result
+    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations)
+    return OrdinalEstimation(table, model, objective, opt.theta, opt.value, opt.converged, opt.iterations, message)
 
 
 def ordinal_score_tests(est: OrdinalEstimation, candidates: list[list]) -> list[ModificationIndex]:
@@ -355,7 +383,10 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         rho = sigma / np.outer(sd, sd)
         summary = DataSummary(mg.source, mg.rows_read, mg.rows_dropped, mg.n_obs, table.observed,
                               tuple(float(v) for v in mg.means), tuple(float(v) for v in mg.sds))
-        factors, htmt = reliability(mats[g], table.observed, table.latent, mg.correlations)
+        factors, htmt = reliability(mats[g], table.observed, table.latent, mg.correlations,
+                                    declared=spec.reverse_keyed or None, sum_scores=False)
+        if est.converged:
+            warnings.extend(keying_warnings(factors, f"group {lab}: "))
         group_results.append(GroupResult(lab, summary, shares[g], srmrs[g],
                                          dict(zip(table.observed, (float(v) for v in r_squared(mats[g])))),
                                          mg.correlations, rho, mg.correlations - rho, np.zeros(p), None, None,

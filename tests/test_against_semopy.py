@@ -8,11 +8,15 @@ Both use the expected information with N for standard errors.
 
 from __future__ import annotations
 
+import os
+
 import numpy as np
 import pytest
 
 import cfa_tool
+from cfa_tool.errors import EstimationError
 from tests.conftest import THREE_FACTORS
+from tests.corpus import Case, corpus_cases, questionnaire
 
 
 def _semopy_fit(description: str, data):
@@ -100,3 +104,77 @@ def test_higher_order_model(hs_data):
     _compare(_ours_lookup(ours), _semopy_lookup(table))
     # a higher-order factor over three factors is just-identified at that level: same fit as three correlated factors
     assert ours.fit.chi_square == pytest.approx(85.306, abs=5e-3)
+
+
+# ---------------------------------------------------------------- scales with reverse-keyed markers (issue 21)
+
+LONG_RUN = int(os.environ.get("CFA_CONVERGENCE_CASES", "0"))
+
+
+def _semopy_minimum(q, complete) -> tuple[bool, bool, float]:
+    """(semopy reports success, its solution is inside the admissible region, its chi-square).  semopy
+    keeps variances at or above zero, so a search that ends with a variance at that bound has stopped at
+    the edge of its region rather than at the minimum that the unbounded model has."""
+    import semopy
+
+    model = semopy.Model(q.reference_model())
+    result = model.fit(complete, solver="trust-constr")
+    table = model.inspect()
+    variances = table[(table["op"] == "~~") & (table["lval"] == table["rval"])]["Estimate"].astype(float)
+    chi = float(semopy.calc_stats(model).T["Value"]["chi2"])
+    return bool(result.success), bool((variances > 1e-4).all()), chi
+
+
+def _chi_square_or_none(text: str, complete) -> float | None:
+    try:
+        return cfa_tool.fit(text, complete, diagnostics=False, modification_indices=False).fit.chi_square
+    except EstimationError:
+        return None
+
+
+@pytest.mark.parametrize("case", [Case(103, 15, 5, 600, 7, 0.0), Case(105, 25, 5, 2800, 6, 0.01),
+                                  Case(106, 30, 10, 500, 5, 0.01)], ids=lambda c: c.name)
+def test_chi_square_with_reverse_keyed_markers_agrees_with_semopy(case):
+    q = questionnaire(case)
+    complete = q.data.dropna()
+    ours = cfa_tool.fit(q.model(), complete, diagnostics=False, modification_indices=False)
+    success, inside, chi = _semopy_minimum(q, complete)
+    assert success and inside
+    assert ours.fit.chi_square == pytest.approx(chi, rel=1e-4)
+
+
+def test_semopy_can_stop_at_the_edge_where_a_reverse_keyed_marker_leads_it():
+    # three traits of three items whose markers are all reverse-keyed: semopy's search ends with two
+    # residual variances at its bound of zero, above the interior minimum this tool finds
+    q = questionnaire(Case(101, 9, 3, 150, 5, 0.0))
+    assert all(block[0] in q.reversed for block in q.blocks)
+    complete = q.data.dropna()
+    ours = cfa_tool.fit(q.model(), complete)
+    success, inside, chi = _semopy_minimum(q, complete)
+    assert success and not inside
+    assert ours.fit.chi_square < chi
+    assert min(r.estimate for r in ours.estimates if r.kind == "residual_variance") > 0.1  # interior, admissible
+
+
+@pytest.mark.skipif(not LONG_RUN, reason="the long corpus run is opt-in: set CFA_CONVERGENCE_CASES")
+def test_long_corpus_run_agrees_with_semopy_wherever_it_reaches_the_minimum():
+    counts = {"cases": 0, "ours converged": 0, "semopy reported success": 0, "semopy inside its region": 0,
+              "same chi-square": 0}
+    disagree = []
+    for case in corpus_cases(LONG_RUN):
+        q = questionnaire(case)
+        complete = q.data.dropna()
+        counts["cases"] += 1
+        ours = _chi_square_or_none(q.model(), complete)
+        success, inside, chi = _semopy_minimum(q, complete)
+        counts["ours converged"] += ours is not None
+        counts["semopy reported success"] += success
+        counts["semopy inside its region"] += success and inside
+        if ours is not None and success and inside:
+            if abs(ours - chi) <= 1e-4 * chi:
+                counts["same chi-square"] += 1
+            else:
+                disagree.append((case.name, ours, chi))
+    print("\n" + ", ".join(f"{k}: {v}" for k, v in counts.items()))
+    assert counts["ours converged"] == counts["cases"]
+    assert not disagree, disagree

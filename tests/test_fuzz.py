@@ -49,6 +49,7 @@ statement = st.one_of(
     refs.map(lambda s: f"noninvariant {s}"),
     quoted.map(lambda s: f"name {s}"),
     name_list.map(lambda s: f"ordinal {s}"),
+    st.tuples(name_list, number, number).map(lambda t: f"reversed {t[0]} on {t[1]} to {t[2]}"),
     st.text(max_size=20),
 )
 model_text = st.lists(statement, min_size=0, max_size=8).map("\n".join)
@@ -111,6 +112,7 @@ valid_models = st.sampled_from([
     "factor f: q1..q6\nscale latent by variance\n",
     "factor f: q1, q2, q3\nfactor g: q4, q5, q6\nfactor h: f, g\nequal loading(h, f), loading(h, g)\n",
     "factor f: q1, q2, q3\nfactor g: q3, q4, q5, q6\ncovary q1, q2\nbound variance(q1) >= 0\n",
+    "factor f: q1, q2, q3\nfactor g: q4, q5, q6\nreversed q1, q5 on -4 to 4\n",
 ])
 
 
@@ -145,6 +147,7 @@ ordinal_models = st.sampled_from([
     "factor f: q1..q6\nordinal q1..q6\ninvariant thresholds, loadings\n",
     "factor f: q1, q2, q3\nfactor g: q4, q5, q6\nordinal q1..q6\ninvariant thresholds, loadings, intercepts\n"
     "noninvariant threshold(q2)\nscale latent by variance\n",
+    "factor f: q1, q2, q3\nfactor g: q4, q5, q6\nordinal q1..q6\nreversed q1, q4 on 1 to 5\n",
 ])
 
 

@@ -84,6 +84,15 @@ def test_free_moves_the_marker():
     assert fixed == {"loading(f, b)"}
 
 
+def test_reversed_items_with_their_answer_scale():
+    spec = parse_model("factor f: a, b, c, d\nfactor g: e, h, i\nreversed b, d on 1 to 6\nreversed h on 0 to 10\n")
+    assert spec.reverse_keyed == {"b": (1.0, 6.0), "d": (1.0, 6.0), "h": (0.0, 10.0)}
+    assert spec.reversed[0].location.line == 3
+    # keying changes no parameter of the model
+    plain = build_parameter_table(parse_model("factor f: a, b, c, d\nfactor g: e, h, i\n"))
+    assert build_parameter_table(spec).parameters == plain.parameters
+
+
 def test_comments_and_blank_lines_only_around_statements():
     spec = parse_model("\n\n# comment\n   \nfactor f: a, b, c   # trailing comment\n\n")
     assert spec.factor_names == ("f",)
@@ -137,6 +146,14 @@ def _error(text: str) -> ModelError:
         ("factor f: a\n", 1, 8, "single indicator 'a'"),
         ("factor f: a, b\n", 1, 8, "two indicators and no correlation"),
         ("factor f: a, b, c\nscale f by effects\nfactor g: d\nfix variance(d) = 0\nname \"x\"\nname \"y\"\n", 6, 1, "already has a name"),
+        ("factor f: a, b, c\nreversed b on 6 to 1\n", 2, 15, "from a smaller to a larger number; got 6 to 1"),
+        ("factor f: a, b, c\nreversed b on 5 to 5\n", 2, 15, "from a smaller to a larger number"),
+        ("factor f: a, b, c\nreversed f on 1 to 5\n", 2, 10, "'f' is a factor; only items can be reverse-keyed"),
+        ("factor f: a, b, c\nreversed z on 1 to 5\n", 2, 10, "'z' is not a factor or an indicator"),
+        ("factor f: a, b, c\nreversed b on 1 to 5\nreversed c, b on 1 to 5\n", 3, 13, "'b' is declared reversed twice (first on line 2)"),
+        ("factor f: a, b, c\nreversed b 1 to 5\n", 2, 12, "expected ',', '..' or 'on'"),
+        ("factor f: a, b, c\nreversed b on 1\n", 2, 16, "expected 'to'"),
+        ("factor f: a, b, c\nreverse b on 1 to 5\n", 2, 1, "unknown statement 'reverse'; did you mean 'reversed'?"),
     ],
 )
 def test_error_messages(text, line, column, words):

@@ -72,6 +72,20 @@ def test_default_population_is_standardized_whatever_the_scaling(scaling):
     assert np.allclose(data.var(ddof=0), 1.0, atol=0.04)
 
 
+def test_reverse_keyed_items_take_negative_default_loadings():
+    # a: the marker of f, reverse-keyed, so f points the reversed way and b, d (worded with the trait) load
+    # negatively on it; h is reversed in g, whose marker e is not (signs by construction of the defaults)
+    spec = parse_model("factor f: a, b, c, d\nfactor g: e, h, i\nreversed a, c, h on 1 to 5\n")
+    theta = dict(zip(*[(population := population_from_spec(spec)).table.free_labels, population.theta]))
+    # standardized defaults of -.7 for reverse-keyed items, .7 for the rest, in the markers' units: +-1
+    loadings = {k: round(v, 8) for k, v in theta.items() if k.startswith("loading")}
+    assert loadings == {"loading(f, b)": -1.0, "loading(f, c)": 1.0, "loading(f, d)": -1.0, "loading(g, h)": -1.0,
+                        "loading(g, i)": 1.0}
+    standardized = {(v["variables"][0], v["variables"][1]): v["standardized"] for v in population.values()
+                    if v["kind"] == "loading"}
+    assert standardized[("f", "b")] == pytest.approx(-0.7) and standardized[("g", "h")] == pytest.approx(-0.7)
+
+
 def test_simulated_ordinal_and_missing_data():
     data = simulate(parse_model(POPULATION), 3000, seed=5, categories=5, missing=0.1).frame
     assert all(str(t) == "Int64" for t in data.dtypes)  # whole-number answers, written as 4, not 4.0

@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 
 import cfa_tool
-from tests.conftest import THREE_FACTORS
+from tests.conftest import THREE_FACTORS, simulate_cfa
 
 
 @pytest.fixture(scope="module")
@@ -90,3 +90,141 @@ def test_normalized_residuals(hs_three):
     i, j = 6, 7  # x7, x8
     expected = (S[i, j] - sigma[i, j]) / np.sqrt((sigma[i, i] * sigma[j, j] + sigma[i, j] ** 2) / n)
     assert hs_three.groups[0].normalized_residuals[i, j] == pytest.approx(expected, rel=1e-12)
+
+
+# ---------------------------------------------------------------- reverse-keyed items (issue 21)
+
+KEYED_MODEL = "".join(f"factor {f}: " + ", ".join(f"{f}{i}" for i in range(1, 6)) + "\n" for f in "abcde")
+# two reverse-keyed items per factor; in a and c the first item (the marker) is one of them
+REVERSED = {"a": ("a1", "a4"), "b": ("b2", "b5"), "c": ("c1", "c3"), "d": ("d2", "d4"), "e": ("e3", "e5")}
+
+
+@pytest.fixture(scope="module")
+def keyed_scale():
+    """Five traits of five six-point items (answers 1 to 6), two reverse-keyed items each (negative
+    population loadings), N = 1,500; simulated, so the keys are known by construction."""
+    loadings = np.zeros((25, 5))
+    rng = np.random.default_rng(21)
+    for j, f in enumerate("abcde"):
+        for i in range(5):
+            name = f"{f}{i + 1}"
+            loadings[5 * j + i, j] = (-1 if name in REVERSED[f] else 1) * rng.uniform(0.5, 0.8)
+    phi = 0.3 + 0.7 * np.eye(5)
+    theta = np.diag(1 - np.diag(loadings @ phi @ loadings.T))
+    names = [f"{f}{i}" for f in "abcde" for i in range(1, 6)]
+    latent = simulate_cfa(loadings, phi, theta, n=1500, seed=21, names=names)
+    return latent.apply(lambda x: 1 + np.searchsorted([-1.5, -0.7, 0.0, 0.7, 1.5], x)).astype(float)
+
+
+def _reversed_data(data):
+    flipped = data.copy()
+    for items in REVERSED.values():
+        for x in items:
+            flipped[x] = 7 - flipped[x]  # 1 + 6 - x on a scale from 1 to 6
+    return flipped
+
+
+def _alpha_by_hand(block) -> float:
+    # Cronbach (1951): k/(k-1) (1 - sum of item variances / variance of the sum)
+    k = block.shape[1]
+    return k / (k - 1) * (1 - block.var(axis=0, ddof=1).sum() / block.sum(axis=1).var(ddof=1))
+
+
+def test_keyed_alpha_equals_alpha_by_hand_on_the_reversed_items(keyed_scale):
+    result = cfa_tool.fit(KEYED_MODEL, keyed_scale)
+    flipped = _reversed_data(keyed_scale)
+    for r in result.groups[0].reliability:
+        assert r.reversed == REVERSED[r.factor]  # keyed by the signs of the loadings, as simulated
+        by_hand = _alpha_by_hand(flipped[list(r.items)].to_numpy())
+        assert r.alpha == pytest.approx(by_hand, rel=1e-10)
+
+
+def test_keyed_omega_equals_omega_of_the_model_fitted_to_reversed_answers(keyed_scale):
+    keyed = {r.factor: r for r in cfa_tool.fit(KEYED_MODEL, keyed_scale).groups[0].reliability}
+    plain = {r.factor: r for r in cfa_tool.fit(KEYED_MODEL, _reversed_data(keyed_scale)).groups[0].reliability}
+    for f in "abcde":
+        assert plain[f].reversed == ()  # after reversing the answers every loading is positive
+        # the same model in the reversed data, fitted independently (both to a Newton decrement below 1e-14)
+        assert keyed[f].omega == pytest.approx(plain[f].omega, rel=1e-8)
+        assert keyed[f].omega_total == pytest.approx(plain[f].omega_total, rel=1e-8)
+        assert keyed[f].composite_reliability == pytest.approx(plain[f].composite_reliability, rel=1e-8)
+        assert keyed[f].average_variance_extracted == pytest.approx(plain[f].average_variance_extracted, rel=1e-8)
+
+
+def test_unkeyed_figures_never_appear(keyed_scale):
+    import json
+
+    from cfa_tool.reporting.json_report import to_json
+    from cfa_tool.reporting.numbers import unit
+
+    result = cfa_tool.fit(KEYED_MODEL, keyed_scale)
+    report = result.summary()
+    reliability = json.loads(to_json(result))["reliability"]["factors"]
+    for r, row in zip(result.groups[0].reliability, reliability):
+        unkeyed = _alpha_by_hand(keyed_scale[list(r.items)].to_numpy())  # the plain sum (Cronbach 1951)
+        assert unkeyed < 0.3 < r.alpha  # two reversed items of five make the plain sum nearly worthless
+        assert row["alpha"] == pytest.approx(r.alpha) and row["alpha"] != pytest.approx(unkeyed)
+        assert f" {unit(unkeyed)} " not in report
+        assert row["reversed"] == list(REVERSED[r.factor])
+    from cfa_tool.reporting.tables import reliability_table
+
+    note = reliability_table(result).note  # what every report prints under the table
+    assert ("reversed for scoring (their loadings have the sign opposite to most items of their factor): a: a1, a4; "
+            "b: b2, b5; c: c1, c3; d: d2, d4; e: e3, e5.") in note
+
+
+def test_keyed_composite_reliability_sum_scores_and_htmt_by_hand(keyed_scale):
+    result = cfa_tool.fit(KEYED_MODEL, keyed_scale)
+    flipped = _reversed_data(keyed_scale)
+    est = {(r.kind, r.variables): r for r in result.estimates}
+    by_factor = {r.factor: r for r in result.groups[0].reliability}
+    for f in "abcde":
+        items = [f"{f}{i}" for i in range(1, 6)]
+        keys = np.array([-1.0 if x in REVERSED[f] else 1.0 for x in items])
+        std = np.array([est[("loading", (f, x))].standardized for x in items])
+        # Fornell & Larcker (1981) on the keyed loadings
+        cr = (keys @ std) ** 2 / ((keys @ std) ** 2 + (1 - std**2).sum())
+        assert by_factor[f].composite_reliability == pytest.approx(cr, rel=1e-10)
+        total = flipped[items].sum(axis=1)
+        assert by_factor[f].sum_score_sd == pytest.approx(total.std(ddof=1), rel=1e-10)
+        assert by_factor[f].sum_score_mean is None  # the answer scale is not declared
+        # corrected item-total correlations of the reversed data, by hand
+        rest = [np.corrcoef(flipped[x], total - flipped[x])[0, 1] for x in items]
+        np.testing.assert_allclose(by_factor[f].item_total, rest, rtol=1e-10)
+    # Henseler, Ringle & Sarstedt (2015) on the reversed data
+    R = flipped.corr().to_numpy()
+    a, b = list(range(5)), list(range(5, 10))
+    mono = lambda ix: R[np.ix_(ix, ix)][np.triu_indices(5, 1)].mean()  # noqa: E731
+    expected = abs(R[np.ix_(a, b)].mean()) / np.sqrt(mono(a) * mono(b))
+    pair = [h for h in result.groups[0].htmt if (h.first, h.second) == ("a", "b")][0]
+    assert pair.ratio == pytest.approx(expected, rel=1e-10)
+
+
+def test_declared_keying_takes_precedence_and_a_contradiction_is_named(keyed_scale):
+    declared = [x for items in REVERSED.values() for x in items if x != "e5"]  # e5 forgotten
+    result = cfa_tool.fit(KEYED_MODEL + f"reversed {', '.join(declared)} on 1 to 6\n", keyed_scale)
+    by_factor = {r.factor: r for r in result.groups[0].reliability}
+    assert by_factor["e"].reversed == ("e3",)
+    assert [w for w in result.warnings if "'reversed' statement" in w] == [
+        "factor 'e': the loadings of 'e5' point the other way from what the 'reversed' statement implies; "
+        "check the keying and how the answers were coded"]
+    # the declared keys hold, right or wrong: alpha of the sum with only e3 reversed, by hand
+    as_declared = keyed_scale[[f"e{i}" for i in range(1, 6)]].copy()
+    as_declared["e3"] = 7 - as_declared["e3"]
+    assert by_factor["e"].alpha == pytest.approx(_alpha_by_hand(as_declared.to_numpy()), rel=1e-10)
+    # with the scale's range declared, the keyed sum's mean: reversed answers count as 1 + 6 - x
+    flipped = _reversed_data(keyed_scale)
+    assert by_factor["a"].sum_score_mean == pytest.approx(flipped[[f"a{i}" for i in range(1, 6)]].sum(axis=1).mean(),
+                                                         rel=1e-12)
+
+
+def test_ordinal_reliability_is_keyed_too(keyed_scale):
+    keyed = {r.factor: r for r in cfa_tool.fit(KEYED_MODEL, keyed_scale, ordinal="all").groups[0].reliability}
+    plain = {r.factor: r for r in cfa_tool.fit(KEYED_MODEL, _reversed_data(keyed_scale), ordinal="all")
+             .groups[0].reliability}
+    for f in "abcde":
+        assert keyed[f].reversed == REVERSED[f]
+        # reversing an item's categories flips the signs of its polychoric correlations (Olsson 1979), nothing else
+        assert keyed[f].omega == pytest.approx(plain[f].omega, rel=1e-6)
+        assert keyed[f].alpha == pytest.approx(plain[f].alpha, rel=1e-6)
+        assert keyed[f].sum_score_sd is None  # sums of latent responses are not reported

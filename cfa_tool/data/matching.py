@@ -29,3 +29,26 @@ def check_columns(spec: Spec, columns: list[str], data_source: str) -> None:
                 loc,
                 spec.source_line(loc),
             )
+
+
+def check_declared_ranges(spec: Spec, frame, data_source: str) -> None:
+    """Answers of items declared with 'reversed ... on MIN to MAX' must lie on that scale."""
+    import numpy as np
+    import pandas as pd
+
+    data_name = data_source.replace("\\", "/").rsplit("/", 1)[-1]
+    for keying in spec.reversed:
+        for name in keying.items:
+            if name.text not in frame.columns:
+                continue
+            values = pd.to_numeric(frame[name.text], errors="coerce").to_numpy(dtype=float)
+            outside = values[np.isfinite(values) & ((values < keying.minimum) | (values > keying.maximum))]
+            if len(outside):
+                found = (f"the answer {outside.min():g}" if outside.min() == outside.max()
+                         else f"answers from {outside.min():g} to {outside.max():g}")
+                raise ModelError(
+                    f"'{name}' has {found} in {data_name}, outside the scale {keying.minimum:g} to {keying.maximum:g} "
+                    f"declared here; give the scale's real lowest and highest answers",
+                    name.location,
+                    spec.source_line(name.location),
+                )

@@ -21,6 +21,7 @@ from cfa_tool import distributions as dist
 from cfa_tool.estimation.linalg import scaled_inverse
 from cfa_tool.estimation.ml import Evaluation
 from cfa_tool.model.implied import StructuredModel
+from cfa_tool.model.rank_two import basis_vectors, second_derivative_contraction
 
 
 class WeightedLeastSquares:
@@ -38,8 +39,42 @@ class WeightedLeastSquares:
         return float(resid @ (self.w * resid))
 
     def jacobian(self, theta: np.ndarray) -> np.ndarray:
-        d_sigma, _ = self.model.jacobian(theta)
-        return d_sigma[:, self.pairs[0], self.pairs[1]]  # (q, pairs)
+        """d rho / d theta, shape (q, pairs).  Each entry's derivative of Sigma is c (u v' + v u') for
+        columns u, v of V = [I, C', G] (:mod:`cfa_tool.model.rank_two`), so its element (i, j) is
+        c (V_iu V_jv + V_iv V_ju): gathered for the pairs below the diagonal, without p x p arrays."""
+        V, _ = basis_vectors(self.model.matrices(theta), False)
+        basis = self.model.bases[0]
+        Vi, Vj = V[self.pairs[0]], V[self.pairs[1]]
+        D = basis.c * (Vi[:, basis.u] * Vj[:, basis.v] + Vi[:, basis.v] * Vj[:, basis.u])  # (pairs, active entries)
+        return D.T if self.model.identity_J[0] else self.model.active_J[0].T @ D.T
+
+    def gradient(self, theta: np.ndarray) -> np.ndarray:
+        """-2 D W (r - rho): what differences of the gradient (Newton's steps near the minimum) need."""
+        resid = self.r - self.model.implied(theta)[self.pairs]
+        return -2.0 * self.jacobian(theta) @ (self.w * resid)
+
+    def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
+        """Second derivatives of F in closed form (None with higher-order factors):
+
+            H = 2 D W D' - 2 tr(M d2Sigma / dtheta dtheta'),   M_ij = M_ji = w_k e_k / 2 for the pair k = (i, j),
+
+        e = r - rho the residuals; the second derivatives of Sigma are those of maximum likelihood
+        (Neudecker & Satorra 1991; :func:`cfa_tool.model.rank_two.second_derivative_contraction`)."""
+        model = self.model
+        if model.higher_order:
+            return None
+        mats = model.matrices(theta)
+        half = 0.5 * self.w * (self.r - mats.implied_covariance()[self.pairs])
+        M = np.zeros((model.p, model.p))
+        M[self.pairs] = half
+        M[self.pairs[1], self.pairs[0]] = half
+        second = second_derivative_contraction(model.second_orders[0], M, mats.L, mats.P)
+        if not model.identity_J[0]:
+            J = model.active_J[0]
+            second = J.T @ second @ J
+        D = self.jacobian(theta)
+        H = 2.0 * (D * self.w) @ D.T - 2.0 * second
+        return 0.5 * (H + H.T)
 
     def evaluate(self, theta: np.ndarray) -> Evaluation:
         resid = self.r - self.model.implied(theta)[self.pairs]

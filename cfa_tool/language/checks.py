@@ -55,6 +55,7 @@ def check_spec(spec: Spec) -> None:
     _check_factors(spec)
     _check_scaling(spec)
     _check_ordinal(spec)
+    _check_reversed(spec)
     _check_pairs(spec)
     _check_references(spec)
     _check_contradictions(spec)
@@ -153,6 +154,21 @@ def _check_ordinal(spec: Spec) -> None:
             raise _fail(spec, f"'{name}' is a factor; only indicators can be ordinal", name.location)
         if name.text not in observed:
             raise _unknown_name(spec, name.text, name.location)
+
+
+def _check_reversed(spec: Spec) -> None:
+    observed = set(spec.observed_names)
+    seen: dict[str, Location] = {}
+    for keying in spec.reversed:
+        for name in keying.items:
+            if name.text in spec.factor_names:
+                raise _fail(spec, f"'{name}' is a factor; only items can be reverse-keyed", name.location)
+            if name.text not in observed:
+                raise _unknown_name(spec, name.text, name.location)
+            if name.text in seen:
+                raise _fail(spec, f"'{name}' is declared reversed twice (first on line {seen[name.text].line}); "
+                                  f"declare each item once", name.location)
+            seen[name.text] = name.location
 
 
 def _known_names(spec: Spec) -> list[str]:

@@ -28,6 +28,7 @@ from cfa_tool.language.spec import (
     Name,
     NamePair,
     ParameterRef,
+    ReverseKeying,
     ScaleSetting,
     Spec,
     ValueSetting,
@@ -35,7 +36,7 @@ from cfa_tool.language.spec import (
 from cfa_tool.resources import resource_dir
 
 STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale", "in",
-                   "invariant", "noninvariant", "ordinal")
+                   "invariant", "noninvariant", "ordinal", "reversed")
 
 # Plain words for the grammar's terminals, used in "expected ..." messages.
 _TERMINAL_WORDS = {
@@ -207,6 +208,7 @@ class _Builder:
         invariant: list[str] = []
         noninvariant: list[ParameterRef] = []
         ordinal: list[Name] = []
+        reversed_items: list[ReverseKeying] = []
         for stmt in tree.children:
             kind = stmt.data
             self.group = None
@@ -262,6 +264,12 @@ class _Builder:
                 noninvariant.extend(self.refs(stmt.children[0]))
             elif kind == "ordinal_stmt":
                 ordinal.extend(self.name_list(stmt.children[0]))
+            elif kind == "reversed_stmt":
+                low, high = self.number(stmt.children[1]), self.number(stmt.children[2])
+                if low >= high:
+                    raise self.error(f"the answer scale must run from a smaller to a larger number; got {low:g} to {high:g}",
+                                     stmt.children[1].children[0])
+                reversed_items.append(ReverseKeying(self.name_list(stmt.children[0]), low, high, self.loc(stmt)))
             else:  # pragma: no cover - grammar and builder out of step
                 raise self.error(f"statement '{kind}' is not handled", stmt)
         if not factors:
@@ -285,6 +293,7 @@ class _Builder:
             invariant=tuple(invariant),
             noninvariant=tuple(noninvariant),
             ordinal=tuple(ordinal),
+            reversed=tuple(reversed_items),
             lines=self.lines,
         )
 

@@ -102,6 +102,17 @@ class ScaleSetting:
 
 
 @dataclass(frozen=True)
+class ReverseKeying:
+    """``reversed a, b on 1 to 6``: items worded against their trait, answered on a scale from
+    ``minimum`` to ``maximum`` (an answer x counts as minimum + maximum - x in the keyed sum)."""
+
+    items: tuple[Name, ...]
+    minimum: float
+    maximum: float
+    location: Location
+
+
+@dataclass(frozen=True)
 class Spec:
     """Everything a model file says, in the order it said it."""
 
@@ -120,6 +131,7 @@ class Spec:
     invariant: tuple[str, ...] = ()
     noninvariant: tuple[ParameterRef, ...] = ()
     ordinal: tuple[Name, ...] = ()
+    reversed: tuple[ReverseKeying, ...] = ()
     lines: tuple[str, ...] = field(default=(), repr=False, compare=False)
 
     @cached_property
@@ -136,6 +148,11 @@ class Spec:
                 if ind.text not in latent:
                     seen.setdefault(ind.text, None)
         return tuple(seen)
+
+    @property
+    def reverse_keyed(self) -> dict[str, tuple[float, float]]:
+        """Items declared reverse-keyed, with the minimum and maximum of their answer scale."""
+        return {item.text: (k.minimum, k.maximum) for k in self.reversed for item in k.items}
 
     def first_mention(self, name: str) -> Location | None:
         """Where ``name`` first appears as an indicator (for error messages)."""

@@ -108,6 +108,12 @@ class ParameterTable:
         return groups
 
     @cached_property
+    def scaled_by_loadings(self) -> bool:
+        """Some factor takes its scale from a marker's fixed loading or from effects coding (the
+        scalings that a restart by factor variances can stand in for)."""
+        return any(par.origin == "scale" and par.kind == "loading" for par in self.parameters)
+
+    @cached_property
     def start_plan(self):
         """What the start finder needs from this table (:func:`cfa_tool.model.starts.start_plan`), read once."""
         from cfa_tool.model.starts import start_plan  # the start finder builds on this module

@@ -1,10 +1,19 @@
 """Starting values from the sample covariance matrix.
 
 Each factor's standardized loadings are taken from the first principal axis of
-its indicators' correlation matrix; residual variances follow as
-``s_ii (1 - l_i^2)``; factor correlations are the mean cross-correlation of
-their indicators divided by the mean loadings (a Spearman-style correction
-for attenuation).  Targets for every matrix entry are then mapped to theta by
+its indicators' correlation matrix (a one-factor principal-axis solution,
+Harman 1976, ch. 8), signs included: reverse-keyed items start with a loading
+of the opposite sign.  The axis is turned so that the factor points the way its
+scale says: the marker's loading gets the sign of its fixed value (a reverse-keyed
+marker makes the other items' loadings negative), effects coding makes the
+loadings' sum positive, and a factor with a fixed variance follows the majority
+of its items.  Residual variances follow as ``s_ii (1 - l_i^2)``.  Factor
+correlations are least-squares estimates from the cross-correlations of the two
+blocks, phi_ab = l_a' R_ab l_b / (l_a'l_a l_b'l_b), which is the population value
+when R_ab = l_a phi_ab l_b' (a Spearman-style correction for attenuation), shrunk
+towards zero if needed so that they form a positive-definite matrix.  A higher-order
+factor's paths take their signs from the first principal axis of the correlations
+of the factors below it.  Targets for every matrix entry are then mapped to theta by
 least squares, which respects equality constraints and effects coding.
 """
 
@@ -29,6 +38,8 @@ class FactorBlock:
     rule: np.ndarray
     position: np.ndarray
     value: np.ndarray
+    marker: tuple[np.ndarray, np.ndarray]  # (row, position) of each factor's marker in the stack
+    markers_only: bool  # every factor of the block is scaled by a marker (the usual case)
 
 
 @dataclass(frozen=True)
@@ -41,8 +52,8 @@ class StartPlan:
     # the rules of FactorBlock, the marker's position being the lower factor itself
     higher: tuple[tuple[int, tuple[int, ...], tuple[int, int, float]], ...]
     endogenous: np.ndarray  # bool per factor: loads on a higher-order factor
-    mean_weights: np.ndarray  # (m, p): 1 / (number of items) for each factor's items, for mean correlations
     has_factor: np.ndarray  # bool per item: has a loading
+    pairs_with_items: np.ndarray | None  # per factor covariance: both factors have items (None: all do)
     loads: tuple[np.ndarray, np.ndarray, np.ndarray]  # (entries, factor, item) of indicator loadings
     paths: tuple[np.ndarray, np.ndarray, np.ndarray]  # (entries, higher factor, lower factor)
     variances: tuple[np.ndarray, np.ndarray]  # (entries, factor)
@@ -100,7 +111,6 @@ def start_plan(table: ParameterTable) -> StartPlan:
     for ix in items.values():
         n_factors[ix] += 1
     rules = {}
-    mean_weights = np.zeros((m, p))
     for f, ix in items.items():
         if not ix:
             continue
@@ -110,13 +120,13 @@ def start_plan(table: ParameterTable) -> StartPlan:
             rules[f] = (1, ix.index(fixed_load[f][0]), fixed_load[f][1])
         else:
             rules[f] = (2, 0, 1.0)
-        mean_weights[f, ix] = 1.0 / len(ix)
     blocks = []
     for n in sorted({len(ix) for ix in items.values() if ix}):
         fs = [f for f, ix in items.items() if len(ix) == n]
         ix = np.array([items[f] for f in fs])
         rule, position, value = (np.array(v) for v in zip(*(rules[f] for f in fs)))
-        blocks.append(FactorBlock(np.array(fs), ix, np.sqrt(n_factors[ix]), rule, position, value))
+        blocks.append(FactorBlock(np.array(fs), ix, np.sqrt(n_factors[ix]), rule, position, value,
+                                  (np.arange(len(fs)), position), bool((rule == 1).all())))
     known = {f for f, ix in items.items() if ix}
     pending = [f for f in range(m) if lower[f]]
     higher = []
@@ -143,8 +153,11 @@ def start_plan(table: ParameterTable) -> StartPlan:
         solve = np.linalg.solve(J.T @ J, J.T)  # J'J is nearly diagonal here
     except np.linalg.LinAlgError:
         solve = np.linalg.pinv(J)
-    return StartPlan(tuple(blocks), tuple(higher), endogenous, mean_weights, n_factors > 0,
-                     columns("L", 3), columns("B", 3), columns("var", 2), columns("cov", 3), columns("res", 2),
+    has_items = np.array([bool(items[f]) for f in range(m)])
+    covariances = columns("cov", 3)
+    with_items = has_items[covariances[1]] & has_items[covariances[2]]
+    return StartPlan(tuple(blocks), tuple(higher), endogenous, n_factors > 0, None if with_items.all() else with_items,
+                     columns("L", 3), columns("B", 3), columns("var", 2), covariances, columns("res", 2),
                      columns("int", 2), columns("thr", 2), solve, np.flatnonzero(~np.isnan(table.start)),
                      bool(np.isfinite(table.lower).any() or np.isfinite(table.upper).any()))
 
@@ -157,26 +170,49 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     sd = np.sqrt(np.clip(np.diag(S), 1e-12, None))
     R = S / np.outer(sd, sd)
     std_loading = np.zeros((m, len(sd)))
-    mean_std = np.full(m, np.nan)
     total_var = np.full(m, np.nan)
     for b in plan.blocks:
         ix = b.items
         l_std = _principal_axes(R[ix[:, :, None], ix[:, None, :]]) if ix.shape[1] > 1 else np.full(ix.shape, 0.9)
+        if b.markers_only:  # turn each axis so that the marker's loading has the sign of its fixed value
+            l_std *= np.sign(l_std[b.marker] * b.value)[:, None]
+        else:
+            l_std *= _orientation(l_std, l_std * sd[ix], b.rule, b.position, b.value)[:, None]
         # an item that loads on several factors shares its common variance among them
         std = l_std / b.share
         std_loading[b.factors[:, None], ix] = std
-        mean_std[b.factors] = l_std.mean(axis=1)
         raw = std * sd[ix]
-        marker = raw[np.arange(len(ix)), b.position] / np.where(b.rule == 1, b.value, 1.0)
-        total_var[b.factors] = np.where(b.rule == 0, b.value, np.where(b.rule == 1, marker, raw.mean(axis=1)) ** 2)
-    for g, lower, (rule, position, value) in plan.higher:
-        if rule == 0:
-            total_var[g] = value
-        elif rule == 1:
-            total_var[g] = 0.5 * total_var[position] / value**2
+        if b.markers_only:
+            total_var[b.factors] = (raw[b.marker] / b.value) ** 2
         else:
-            total_var[g] = 0.5 * total_var[list(lower)].mean()
-        mean_std[g] = np.sqrt(0.5)
+            marker = raw[b.marker] / np.where(b.rule == 1, b.value, 1.0)
+            # effects coding: the loadings average 1 (kept away from zero when the items' keys nearly cancel)
+            mean_raw = np.maximum(raw.mean(axis=1) ** 2, 0.01 * (raw**2).mean(axis=1))
+            total_var[b.factors] = np.where(b.rule == 0, b.value, np.where(b.rule == 1, marker**2, mean_raw))
+    # each factor as a weighted sum of its items, weights l / l'l: then w_a' R w_b estimates the correlation
+    # of two factors with distinct items
+    weights = std_loading / np.maximum((std_loading**2).sum(axis=1), 1e-12)[:, None]
+    path_sign = None
+    if plan.higher:
+        path_sign = np.ones((m, m))
+        for g, lower, (rule, position, value) in plan.higher:
+            if rule == 0:
+                total_var[g] = value
+            elif rule == 1:
+                total_var[g] = 0.5 * total_var[position] / value**2
+            else:
+                total_var[g] = 0.5 * total_var[list(lower)].mean()
+            low = list(lower)
+            signs = np.ones(len(low))
+            if len(low) > 1:
+                C = weights[low] @ R @ weights[low].T
+                d = np.sqrt(np.maximum(np.diag(C), 1e-12))
+                axis = _principal_axes((C / np.outer(d, d))[None])
+                signs = np.sign(axis[0] * _orientation(axis, axis, np.array([rule]),
+                                                       np.array([low.index(position) if rule == 1 else 0]),
+                                                       np.array([value]))[0])
+            path_sign[g, low] = signs
+            weights[g] = (signs[:, None] * weights[low]).mean(axis=0)  # for the signs of the level above
     total_var = np.where(np.isnan(total_var), 1.0, total_var)
 
     target = np.zeros(len(table.parameters))
@@ -184,15 +220,16 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     target[e] = std_loading[f, x] * sd[x] / np.sqrt(total_var[f])
     e, f, x = plan.paths
     if len(e):
-        target[e] = np.sqrt(0.5 * total_var[x] / total_var[f])
+        target[e] = path_sign[f, x] * np.sqrt(0.5 * total_var[x] / total_var[f])
     e, f = plan.variances
     target[e] = total_var[f] * np.where(plan.endogenous[f], 0.5, 1.0)
     e, a, b = plan.covariances
     if len(e):
-        # mean cross-correlation of the two factors' items over the mean loadings (Spearman's correction)
-        mean_r = (plan.mean_weights @ R @ plan.mean_weights.T)[a, b]
-        r = np.minimum(np.maximum(mean_r / (mean_std[a] * mean_std[b]), -0.9), 0.9)  # NaN without items
-        target[e] = np.where(np.isnan(r), 0.0, r) * np.sqrt(total_var[a] * total_var[b])
+        r = np.clip((weights @ R @ weights.T)[a, b], -0.9, 0.9)
+        if plan.pairs_with_items is not None:  # factors reached only through others (higher-order) start uncorrelated
+            r = np.where(plan.pairs_with_items, r, 0.0)
+        r = _positive_definite(r, a, b, m)
+        target[e] = r * np.sqrt(total_var[a] * total_var[b])
     e, x = plan.residuals
     explained = np.minimum((std_loading**2).sum(axis=0), 0.9)
     target[e] = S[x, x] * (1.0 - np.where(plan.has_factor[x], explained[x], 0.5))
@@ -209,9 +246,42 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     return np.clip(theta, table.lower, table.upper) if plan.bounded else theta
 
 
+def _orientation(loadings: np.ndarray, raw: np.ndarray, rule: np.ndarray, position: np.ndarray,
+                 value: np.ndarray) -> np.ndarray:
+    """+1 or -1 per row of a stack of one-factor solutions (k, n): the direction in which each factor
+    points.  A marker (rule 1) keeps the sign of its fixed loading; effects coding (rule 2) needs a
+    positive sum of the unstandardized loadings ``raw``; otherwise the majority of the items
+    (ties broken by the sum of the loadings) loads positively."""
+    rows = np.arange(len(loadings))
+    majority = np.sign(np.sign(loadings).sum(axis=1) + 0.5 * np.sign(loadings.sum(axis=1)))
+    toward = np.where(rule == 1, np.sign(loadings[rows, position]) * np.sign(value),
+                      np.where(rule == 2, np.sign(raw.sum(axis=1)), majority))
+    return np.where(toward == 0, 1.0, toward)
+
+
+def _positive_definite(r: np.ndarray, a: np.ndarray, b: np.ndarray, m: int) -> np.ndarray:
+    """Factor correlations r (of the pairs a, b) shrunk towards zero as far as needed for their matrix to
+    have its smallest eigenvalue at least 0.02.  No eigenvalue of a matrix with unit diagonal lies further
+    from 1 than the largest sum of a row's other entries in absolute value (Gershgorin 1931), so when
+    those sums stay below 0.98 no eigenvalue is needed (summed in Python: a few pairs cost less so than
+    numpy calls)."""
+    sums = [0.0] * m
+    for value, i, j in zip(np.abs(r).tolist(), a.tolist(), b.tolist()):
+        sums[i] += value
+        sums[j] += value
+    if max(sums) < 0.98:
+        return r
+    C = np.eye(m)
+    C[a, b] = C[b, a] = r
+    smallest = float(np.linalg.eigvalsh(C)[0])
+    return r if smallest >= 0.02 else r * (0.98 / (1.0 - smallest))
+
+
 def _principal_axes(R: np.ndarray) -> np.ndarray:
     """One-factor principal-axis loadings of a stack of correlation matrices (k, n, n), with squared
-    multiple correlations as communalities; shape (k, n)."""
+    multiple correlations as communalities; shape (k, n).  Signs are kept (an item that correlates
+    negatively with the others gets a negative loading); each axis points the way of the sum of its
+    eigenvector, and magnitudes are held between 0.2 and 0.95."""
     reduced = R.copy()
     try:
         smc = 1.0 - 1.0 / np.diagonal(np.linalg.inv(R), axis1=1, axis2=2)
@@ -223,4 +293,5 @@ def _principal_axes(R: np.ndarray) -> np.ndarray:
     v = vecs[:, :, -1]
     sign = np.sign(v.sum(axis=1))
     v = v * np.where(sign == 0, 1.0, sign)[:, None]
-    return np.clip(v * np.sqrt(np.maximum(vals[:, -1], 0.05))[:, None], 0.2, 0.95)
+    loadings = v * np.sqrt(np.maximum(vals[:, -1], 0.05))[:, None]
+    return np.copysign(np.clip(np.abs(loadings), 0.2, 0.95), loadings)

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from cfa_tool.assessment.reliability import Keying
 from cfa_tool.reporting.numbers import missing, num, p_value, unit
 
 GUIDE_NOTE = (
@@ -173,13 +174,41 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
                      unit(r.average_variance_extracted), fl, unit(r.alpha)])
     ordinal = "polychoric" in result.estimator
     note = (("Ordinal versions, on the latent responses behind the items (alpha from the polychoric correlations). "
-             if ordinal else "") +
-            "Omega: share of the item sum's variance due to the factor (for a higher-order factor: omega hierarchical); "
-            "omega total: due to all factors; CR: composite reliability; AVE: average variance extracted; "
-            "'sqrt(AVE) > r': the Fornell-Larcker comparison with every other factor; alpha from the sample covariances.")
+             if ordinal else "") + keying_sentence(rows) +
+            "Omega: share of the keyed item sum's variance due to the factor (for a higher-order factor: omega "
+            "hierarchical); omega total: due to all factors; CR: composite reliability; AVE: average variance extracted; "
+            "'sqrt(AVE) > r': the Fornell-Larcker comparison with every other factor; alpha from the sample covariances "
+            "of the keyed items.")
     return _table(f"reliability_{group}", "Reliability and validity" + (" (ordinal)" if ordinal else ""),
                   [("Factor", "l"), ("Items", "r"), ("Omega", "r"), ("Omega total", "r"), ("CR", "r"), ("AVE", "r"),
                    ("sqrt(AVE) > r", "l"), ("Alpha", "r")], body, note)
+
+
+def keying_sentence(rows) -> str:
+    """Which items every coefficient treats as reversed, and why."""
+    lists = [f"{r.factor}: {', '.join(r.reversed)}" for r in rows if r.reversed]
+    declared = any(r.keying is Keying.DECLARED for r in rows)
+    if not lists:
+        return ("Every item is keyed as the 'reversed' statement says: none is reversed. " if declared else
+                "Every item loads in its factor's direction, so none is reversed for scoring. ")
+    why = ("as the 'reversed' statement declares" if declared else
+           "their loadings have the sign opposite to most items of their factor")
+    return f"Computed for keyed sums; reversed for scoring ({why}): {'; '.join(lists)}. "
+
+
+def sum_score_table(result, group: int = 0) -> ReportTable | None:
+    rows = [r for r in result.groups[group].reliability if r.sum_score_sd is not None]
+    if not rows:
+        return None
+    body = [[r.factor, str(len(r.items)), ", ".join(r.reversed), num(r.sum_score_mean, 2), num(r.sum_score_sd, 2),
+             unit(min(r.item_total), 2) if r.item_total else ""] for r in rows]
+    note = "The sum of each factor's items with reverse-keyed items reversed; SD with divisor N - 1."
+    if any(r.sum_score_mean is None for r in rows):
+        note += (" A mean is shown once the answer scale of the reversed items is known: declare it with "
+                 "'reversed ITEMS on LOWEST to HIGHEST'.")
+    return _table(f"sum_scores_{group}", "Keyed sum scores",
+                  [("Factor", "l"), ("Items", "r"), ("Reversed for scoring", "l"), ("Mean", "r"), ("SD", "r"),
+                   ("Lowest item-rest r", "r")], body, note)
 
 
 def htmt_table(result, group: int = 0) -> ReportTable | None:
@@ -188,7 +217,8 @@ def htmt_table(result, group: int = 0) -> ReportTable | None:
         return None
     return _table(f"htmt_{group}", "Heterotrait-monotrait ratios",
                   [("Factor", "l"), ("Factor", "l"), ("HTMT", "r")], [[h.first, h.second, unit(h.ratio, 2)] for h in pairs],
-                  "Henseler, Ringle & Sarstedt (2015). Common practice reads values above .85 (or .90) as a sign that two factors are not distinct.")
+                  "Henseler, Ringle & Sarstedt (2015), on the keyed items, in absolute value. Common practice reads "
+                  "values above .85 (or .90) as a sign that two factors are not distinct.")
 
 
 def case_table(result, group: int = 0) -> ReportTable | None:
@@ -203,8 +233,22 @@ def case_table(result, group: int = 0) -> ReportTable | None:
 
 def item_table(result) -> ReportTable:
     d = result.data
-    return _table("items", "Items (analysed rows)", [("Item", "l"), ("Mean", "r"), ("SD", "r")],
-                  [[name, num(m, 2), num(s, 2)] for name, m, s in zip(d.variables, d.means, d.sds)])
+    rest: dict[str, tuple[str, float, bool]] = {}  # item -> (factor, corrected item-total r, reversed)
+    if not result.multigroup:
+        for r in result.groups[0].reliability:
+            for item, value in zip(r.items, r.item_total):
+                rest.setdefault(item, (r.factor, value, item in r.reversed))
+    if not rest:
+        return _table("items", "Items (analysed rows)", [("Item", "l"), ("Mean", "r"), ("SD", "r")],
+                      [[name, num(m, 2), num(s, 2)] for name, m, s in zip(d.variables, d.means, d.sds)])
+    body = []
+    for name, m, s in zip(d.variables, d.means, d.sds):
+        factor, value, flipped = rest.get(name, ("", float("nan"), False))
+        body.append([name, num(m, 2), num(s, 2), factor, "reversed" if flipped else "", unit(value, 2)])
+    return _table("items", "Items (analysed rows)",
+                  [("Item", "l"), ("Mean", "r"), ("SD", "r"), ("Factor", "l"), ("Keying", "l"), ("Item-rest r", "r")],
+                  body, "Item-rest r: the correlation of the (keyed) item with the keyed sum of the other items of its "
+                        "factor (corrected item-total correlation).")
 
 
 def normality_lines(result) -> list[str]:

@@ -3,7 +3,8 @@
 Population values come from the model file: ``start`` (or ``fix``) statements give
 them, in the model's own units.  Every free parameter without one takes a default
 defined on the standardized metric, whatever the model's scaling: standardized
-loadings .7 (.7 / sqrt(k) for an item on k factors), factor correlations .3 (paths of
+loadings .7 (.7 / sqrt(k) for an item on k factors; negative for items a ``reversed``
+statement declares reverse-keyed), factor correlations .3 (paths of
 .7 from a higher-order factor), residual covariances 0, and each item's variance 1.
 That standardized population is converted to the model's own parameterization
 (marker, variance or effects scaling, fixed values, equal parameters) by fitting the
@@ -65,9 +66,10 @@ class Population:
         return out
 
 
-def standardized_population(table: ParameterTable) -> np.ndarray:
+def standardized_population(table: ParameterTable, reverse_keyed: frozenset = frozenset()) -> np.ndarray:
     """The covariance matrix of the default population on the standardized metric, built from the
-    model's structure (which entries exist), not from its scaling."""
+    model's structure (which entries exist), not from its scaling; items in ``reverse_keyed`` load
+    negatively."""
     m, p = len(table.latent), len(table.observed)
     L, B, P, T = np.zeros((p, m)), np.zeros((m, m)), np.zeros((m, m)), np.zeros((p, p))
     codes, rows, cols = table.entry_arrays()
@@ -77,7 +79,8 @@ def standardized_population(table: ParameterTable) -> np.ndarray:
     per_factor = np.bincount(rows[present & (codes == 1)], minlength=m)
     for code, r, c in zip(codes[paths], rows[paths], cols[paths]):
         if code == 0:
-            L[r, c] = STANDARDIZED_LOADING / np.sqrt(per_item[r])
+            sign = -1.0 if table.observed[r] in reverse_keyed else 1.0
+            L[r, c] = sign * STANDARDIZED_LOADING / np.sqrt(per_item[r])
         else:
             B[r, c] = STANDARDIZED_LOADING / np.sqrt(per_factor[r])
     covary = present & (codes == 2) & (rows != cols)
@@ -153,7 +156,7 @@ def population_from_spec(spec: Spec) -> Population:
     for par in table.parameters:
         if len(par.terms) == 1:
             kind_of.setdefault(par.terms[0][0], par.kind)
-    target = standardized_population(table)
+    target = standardized_population(table, frozenset(spec.reverse_keyed))
     n = 1_000_000  # the moments are the population's: N only scales the (unused) test statistic
     moments = SampleMoments(table.observed, target, np.zeros(table.p), n, n, 0, "<population>")
     est = estimate(spec, [(None, moments)], FitOptions(diagnostics=False, modification_indices=False))

@@ -1,0 +1,72 @@
+"""What a researcher reads when an estimation did not converge: what happened, which parameters
+misbehaved, and what to try."""
+
+from __future__ import annotations
+
+from cfa_tool.estimation.optimizer import Outcome
+from cfa_tool.estimation.strategy import Restart, Search
+
+IDENTIFICATION_HINT = ("check that every factor is identified (three or more items with clear loadings, or two items "
+                       "and a correlation with another factor)")
+
+
+def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int) -> str:
+    """One paragraph for a search that did not converge; ``labels`` name the free parameters and ``limit``
+    is the iteration limit in force."""
+    result = found.result
+    used = result.iterations
+    outcome = Outcome.ITERATION_LIMIT if used >= limit and result.outcome is not Outcome.BAD_START else result.outcome
+    parts = [{
+        Outcome.ITERATION_LIMIT: f"no convergence within the limit of {_iterations(limit)}",
+        Outcome.STALLED: f"the search stopped making progress after {_iterations(used)} (the limit is {limit})",
+        Outcome.NO_DECREASE: f"no step lowered the discrepancy any further after {_iterations(used)} "
+                             f"(the limit is {limit})",
+        Outcome.LEFT_REGION: f"after {_iterations(used)} the estimates reached values at which the implied "
+                             f"covariance matrix is not positive definite",
+        Outcome.BAD_START: "the starting values imply a covariance matrix that is not positive definite",
+    }[outcome]]
+    drift = result.drift
+    for indices, words in ((drift.growing, "kept growing"), (drift.shrinking, "shrank towards zero"),
+                           (drift.oscillating, "swung back and forth")):
+        if indices:
+            names = [labels[k] for k in indices]
+            parts.append(f"{_and_list(names)} {words}")
+    advice = []
+    if found.restart is Restart.FAILED:
+        parts.append("a restart with every factor's variance fixed at 1 did not converge either")
+    elif found.restart is Restart.UNSCALABLE:
+        bad = found.unscalable
+        where = f" in group '{bad.group}'" if bad.group is not None else ""
+        if bad.indicator is not None:
+            parts.append(f"with every factor's variance fixed at 1 the model converged, but there the marker "
+                         f"'{bad.indicator}' of factor '{bad.factor}'{where} has a loading of about zero, so it cannot "
+                         f"set the factor's scale")
+            advice.append(f"let another indicator set the scale of '{bad.factor}' ('free loading({bad.factor}, "
+                          f"{bad.indicator})' makes the next one the marker) or write 'scale latent by variance'")
+        else:
+            parts.append(f"with every factor's variance fixed at 1 the model converged, but there the loadings of "
+                         f"factor '{bad.factor}'{where} sum to about zero (items keyed in opposite directions), so "
+                         f"effects coding cannot set its scale")
+            advice.append(f"scale '{bad.factor}' by its variance ('scale {bad.factor} by variance')")
+    elif found.restart is Restart.NOT_CONFIRMED:
+        parts.append("with every factor's variance fixed at 1 the model converged, but the search in the model's own "
+                     "scaling did not confirm that minimum")
+        advice.append("write 'scale latent by variance'")
+    if not advice:
+        if outcome is Outcome.ITERATION_LIMIT:
+            advice.append("raise the limit (--max-iterations)")
+        advice.append(IDENTIFICATION_HINT)
+        advice.append("give start values near the expected solution ('start ...')")
+    return "; ".join(parts) + ". What to try: " + _or_list(advice)
+
+
+def _iterations(n: int) -> str:
+    return f"{n} iteration" if n == 1 else f"{n} iterations"
+
+
+def _and_list(words: list[str]) -> str:
+    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " and " + words[-1]
+
+
+def _or_list(words: list[str]) -> str:
+    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + ", or " + words[-1]
