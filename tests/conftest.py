@@ -1,15 +1,19 @@
 """Shared fixtures.
 
-The Holzinger & Swineford (1939) data (301 pupils, tests x1..x9) come from the
-copy bundled with semopy (semopy/examples/holzinger_swineford39_data.csv), an
-independent open-source project, so the project ships no copy of its own.
+The Holzinger & Swineford (1939) data (301 pupils, tests x1..x9) and Bollen's (1989)
+political-democracy data (75 countries) are public data sets kept in tests/datasets/
+(see its README), so that every test but the comparisons with semopy runs without it.
 """
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import numpy as np
 import pandas as pd
 import pytest
+
+DATASETS = Path(__file__).resolve().parent / "datasets"
 
 THREE_FACTORS = """
 name "Holzinger-Swineford, three abilities"
@@ -23,11 +27,19 @@ factor ability: x1..x9
 """
 
 
+def holzinger_swineford() -> pd.DataFrame:
+    """Holzinger & Swineford (1939): 301 pupils, ability tests x1..x9, two schools."""
+    return pd.read_csv(DATASETS / "holzinger_swineford_1939.csv", index_col=0)
+
+
+def political_democracy() -> pd.DataFrame:
+    """Bollen (1989): industrialization (x1..x3) and political democracy (y1..y8) of 75 countries."""
+    return pd.read_csv(DATASETS / "political_democracy_bollen_1989.csv", index_col=0)
+
+
 @pytest.fixture(scope="session")
 def hs_data() -> pd.DataFrame:
-    from semopy.examples import holzinger39
-
-    return holzinger39.get_data()
+    return holzinger_swineford()
 
 
 @pytest.fixture(scope="session")
