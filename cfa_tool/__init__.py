@@ -6,7 +6,7 @@ model against data without fitting).  Heavy modules load on first use.
 
 from __future__ import annotations
 
-__version__ = "0.1.0"
+from cfa_tool.version import __version__
 __all__ = ["fit", "check", "bootstrap", "cutoffs", "parse_model", "__version__"]
 
 

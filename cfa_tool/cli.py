@@ -205,7 +205,7 @@ def _add_ordinal_options(p: argparse.ArgumentParser) -> None:
 
 
 def _version() -> str:
-    from cfa_tool import __version__
+    from cfa_tool.version import __version__
 
     return f"{PROG} {__version__}"
 

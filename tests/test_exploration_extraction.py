@@ -25,8 +25,8 @@ from tests.conftest import simulate_cfa
 
 @pytest.fixture(autouse=True)
 def _one_blas_thread():
-    """Small matrices compute with one BLAS thread, as the tool does (cfa_tool.fitting.blas_threads_for)."""
-    from cfa_tool.fitting import blas_threads_for
+    """Small matrices compute with one BLAS thread, as the tool does (cfa_tool.numerics.threads.blas_threads_for)."""
+    from cfa_tool.numerics.threads import blas_threads_for
 
     with blas_threads_for(1):
         yield

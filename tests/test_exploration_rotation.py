@@ -26,8 +26,8 @@ UNROTATED = RNG.uniform(-0.6, 0.8, size=(12, 3))  # a general unrotated loading 
 
 @pytest.fixture(autouse=True)
 def _one_blas_thread():
-    """Small matrices compute with one BLAS thread, as the tool does (cfa_tool.fitting.blas_threads_for)."""
-    from cfa_tool.fitting import blas_threads_for
+    """Small matrices compute with one BLAS thread, as the tool does (cfa_tool.numerics.threads.blas_threads_for)."""
+    from cfa_tool.numerics.threads import blas_threads_for
 
     with blas_threads_for(1):
         yield

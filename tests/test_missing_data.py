@@ -10,8 +10,8 @@ import pytest
 
 import cfa_tool
 from cfa_tool.errors import OptionError
-from cfa_tool.estimation.em import em_saturated
-from cfa_tool.estimation.patterns import pattern_data
+from cfa_tool.data.em import em_saturated
+from cfa_tool.data.patterns import pattern_data
 from tests.conftest import THREE_FACTORS
 from tests.test_cli import DATA, MODEL, run
 
@@ -182,7 +182,7 @@ def test_closed_form_fiml_hessian_matches_differences_of_the_gradient(hs_holes, 
     # the observed information used for standard errors under MAR, in closed form, against central
     # differences of the row-by-row gradient (with groups: free factor means, whose second derivatives enter)
     from cfa_tool.api import moments_for
-    from cfa_tool.estimation.linalg import difference_hessian
+    from cfa_tool.numerics.linalg import difference_hessian
     from cfa_tool.fitting import FitOptions, estimate
     from cfa_tool.language import parse_model
 

@@ -173,7 +173,7 @@ def test_closed_form_hessian_equals_differences_of_the_gradient(hs_data, extra):
     # the complete-data observed Hessian (second derivatives of Sigma laid out once per model,
     # Neudecker & Satorra 1991) against central differences of the analytic gradient, away from the minimum
     from cfa_tool.api import moments_for
-    from cfa_tool.estimation.linalg import difference_hessian
+    from cfa_tool.numerics.linalg import difference_hessian
     from cfa_tool.fitting import FitOptions, estimate
     from cfa_tool.language import parse_model
 
@@ -219,7 +219,7 @@ def test_least_squares_hessian_equals_differences_of_the_gradient(text):
     # the closed-form second derivatives of the ordinal least-squares discrepancy against central differences of
     # its analytic gradient, away from the minimum (residuals and weights drawn at random)
     from cfa_tool.estimation.dwls import WeightedLeastSquares
-    from cfa_tool.estimation.linalg import difference_hessian
+    from cfa_tool.numerics.linalg import difference_hessian
     from cfa_tool.language import parse_model
     from cfa_tool.model.implied import StructuredModel
     from cfa_tool.model.parameters import build_parameter_table

@@ -13,7 +13,7 @@ import numpy as np
 import pytest
 
 from cfa_tool.api import moments_for, read_inputs
-from cfa_tool.estimation.patterns import group_patterns, pattern_data
+from cfa_tool.data.patterns import group_patterns, pattern_data
 from cfa_tool.fitting import FitOptions, estimate
 from cfa_tool.resources import resource_dir
 from cfa_tool.scoring.linear import LinearScorer, score_blocks, score_groups, score_rows

@@ -14,7 +14,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from cfa_tool import distributions as dist
+from cfa_tool.numerics import distributions as dist
 
 
 @dataclass(frozen=True)

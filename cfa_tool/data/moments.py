@@ -13,7 +13,7 @@ import pandas as pd
 
 from cfa_tool.errors import DataError, printable
 from cfa_tool.numbers import number as strict_number
-from cfa_tool.estimation.linalg import cholesky_log_det
+from cfa_tool.numerics.linalg import cholesky_log_det
 
 
 @dataclass(frozen=True)
@@ -208,8 +208,8 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
 
 
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int) -> SampleMoments:
-    from cfa_tool.estimation.em import em_saturated
-    from cfa_tool.estimation.patterns import pattern_data
+    from cfa_tool.data.em import em_saturated
+    from cfa_tool.data.patterns import pattern_data
 
     answered = ~np.isnan(values).all(axis=1)
     data = values[answered]

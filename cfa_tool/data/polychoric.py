@@ -26,11 +26,11 @@ import numpy as np
 import pandas as pd
 from scipy import optimize
 
-from cfa_tool import distributions as dist
+from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.data.moments import numeric_columns
 from cfa_tool.errors import DataError, printable
-from cfa_tool.estimation.bivariate import bivariate_cdf, bivariate_pdf
+from cfa_tool.numerics.bivariate import bivariate_cdf, bivariate_pdf
 
 MAX_CATEGORIES = 15
 

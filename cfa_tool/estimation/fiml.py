@@ -19,9 +19,9 @@ from __future__ import annotations
 
 import numpy as np
 
-from cfa_tool.estimation.ml import Evaluation
+from cfa_tool.estimation.objective import Evaluation
 from cfa_tool.model.rank_two import second_derivative_contraction
-from cfa_tool.estimation.patterns import PatternData, embedded_inverse
+from cfa_tool.data.patterns import PatternData, embedded_inverse
 from cfa_tool.model.implied import StructuredModel
 
 
@@ -75,6 +75,7 @@ class MissingDataLikelihood:
         self.weights = [d.n_obs / self.n_total for d in patterns]
         self.p = model.p
         self.means = True
+        self.n_statistics = len(patterns) * (self.p * (self.p + 1) // 2 + self.p)
         self.saturated_value = [pattern_objective(d, mu, sigma) for d, (mu, sigma) in zip(patterns, saturated)]
         self._row_blocks = [_row_blocks(d.rows) for d in patterns]  # fixed by the data: computed once
 

@@ -14,7 +14,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.estimation.linalg import log_det_pd, spd_inverse
+from cfa_tool.estimation.objective import Evaluation
+from cfa_tool.numerics.linalg import log_det_pd, spd_inverse
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, entry_basis, gradient_and_information,
                                      second_derivative_contraction)
@@ -26,13 +27,6 @@ class SingularMoments(ValueError):
 
 
 @dataclass(frozen=True)
-class Evaluation:
-    value: float
-    gradient: np.ndarray
-    information: np.ndarray  # expected Hessian of F
-
-
-@dataclass(frozen=True)
 class GroupMoments:
     """Sample moments of one group: covariance (divisor N), mean vector, size."""
 
@@ -40,6 +34,16 @@ class GroupMoments:
     mean: np.ndarray
     n_obs: int
     rows: np.ndarray | None = None  # raw complete rows, when robust statistics are wanted
+
+
+def group_moments(moments, observed: tuple[str, ...]) -> GroupMoments:
+    """One group's :class:`~cfa_tool.data.moments.SampleMoments` as the estimator needs them: the
+    model's variables in the model's order."""
+    if tuple(moments.names) == tuple(observed):
+        return GroupMoments(moments.covariance, moments.means, moments.n_obs, moments.rows)
+    order = [moments.names.index(n) for n in observed]
+    rows = moments.rows[:, order] if moments.rows is not None else None
+    return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs, rows)
 
 
 class NormalParts:
@@ -71,6 +75,7 @@ class NormalLikelihood:
         self.weights = [g.n_obs / self.n_total for g in groups]
         self.p = model.p
         self.means = model.mean_structure
+        self.n_statistics = len(groups) * (self.p * (self.p + 1) // 2 + (self.p if self.means else 0))
         self.logdet_S = []
         for g in groups:
             logdet = log_det_pd(g.covariance)

@@ -35,8 +35,8 @@ from typing import Callable
 
 import numpy as np
 
-from cfa_tool.estimation.linalg import difference_hessian, scaled_solve
-from cfa_tool.estimation.ml import Evaluation
+from cfa_tool.numerics.linalg import difference_hessian, scaled_solve
+from cfa_tool.estimation.objective import Evaluation
 
 
 class Outcome(Enum):

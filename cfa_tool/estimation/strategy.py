@@ -19,21 +19,15 @@ from __future__ import annotations
 from dataclasses import dataclass
 from dataclasses import replace as dc_replace
 from enum import Enum
-from typing import Callable, Protocol
+from typing import Callable
 
 import numpy as np
 
-from cfa_tool.estimation.ml import Evaluation
+from cfa_tool.estimation.objective import Objective
 from cfa_tool.estimation.optimizer import OptimizerResult, Outcome, minimise
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.model.rescale import Unscalable, convert, same_entries
-
-
-class Objective(Protocol):
-    def evaluate(self, theta: np.ndarray) -> Evaluation | None: ...
-
-    def value(self, theta: np.ndarray) -> float: ...
 
 
 @dataclass(frozen=True)
@@ -113,5 +107,4 @@ def search(objective: Objective, table: ParameterTable, start: np.ndarray, max_i
 def _minimise(objective: Objective, table: ParameterTable, start: np.ndarray, limit: int,
               stop_when_stalled: bool = False) -> OptimizerResult:
     return minimise(objective.evaluate, objective.value, start, table.lower, table.upper, limit,
-                    gradient=getattr(objective, "gradient", None), hessian=getattr(objective, "observed_hessian", None),
-                    stop_when_stalled=stop_when_stalled)
+                    gradient=objective.gradient, hessian=objective.observed_hessian, stop_when_stalled=stop_when_stalled)

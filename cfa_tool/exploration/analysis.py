@@ -5,7 +5,7 @@ steps that a command or an API call runs.
                      --extract--> FactorSolution --rotate--> RotatedSolution
                      --loading_errors--> LoadingErrors --draft_model--> DraftModel
 
-Small matrices are computed with one BLAS thread (``cfa_tool.fitting.blas_threads_for``): a
+Small matrices are computed with one BLAS thread (``cfa_tool.numerics.threads.blas_threads_for``): a
 60 x 60 eigen decomposition takes about 1 ms on one thread and several times longer with two
 threads on a busy machine.
 """
@@ -95,7 +95,7 @@ def describe(exploration_settings: ExploreSettings, data: CorrelationInput, fact
 
 def explore_correlations(data: CorrelationInput, settings: ExploreSettings = ExploreSettings()) -> Exploration:
     """Count (when asked), extract, rotate, standard errors, draft model."""
-    from cfa_tool.fitting import blas_threads_for
+    from cfa_tool.numerics.threads import blas_threads_for
 
     settings = _checked(settings, data.p)
     with blas_threads_for(data.p):

@@ -20,7 +20,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.errors import DataError
-from cfa_tool.estimation.linalg import cholesky_log_det
+from cfa_tool.numerics.linalg import cholesky_log_det
 from cfa_tool.exploration.choices import CorrelationKind
 
 

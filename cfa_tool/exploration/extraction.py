@@ -41,7 +41,7 @@ import numpy as np
 from cfa_tool.assessment.fit_indices import (chi_square_p, normal_log_likelihood, rmsea_interval, rmsea_value,
                                              srmr_value)
 from cfa_tool.errors import EstimationError, OptionError
-from cfa_tool.estimation.linalg import spd_inverse
+from cfa_tool.numerics.linalg import spd_inverse
 from cfa_tool.exploration import correlation_structure as cs
 from cfa_tool.exploration.choices import CorrelationKind, ExtractionMethod, FitStatistic
 from cfa_tool.exploration.correlations import CorrelationInput

@@ -19,8 +19,8 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.estimation.fiml import MissingDataLikelihood, MissingParts
-from cfa_tool.estimation.linalg import scaled_inverse
-from cfa_tool.estimation.patterns import PatternData, embedded_inverse
+from cfa_tool.numerics.linalg import scaled_inverse
+from cfa_tool.data.patterns import PatternData, embedded_inverse
 from cfa_tool.inference.robust import vech_indices
 
 

@@ -12,9 +12,9 @@ from dataclasses import dataclass
 from typing import Callable
 
 import numpy as np
-from cfa_tool import distributions as dist
+from cfa_tool.numerics import distributions as dist
 
-from cfa_tool.estimation.linalg import difference_hessian, scaled_inverse
+from cfa_tool.numerics.linalg import difference_hessian, scaled_inverse
 
 
 @dataclass(frozen=True)

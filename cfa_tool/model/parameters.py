@@ -25,6 +25,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import cached_property
+from typing import Callable
 
 import numpy as np
 
@@ -113,12 +114,14 @@ class ParameterTable:
         scalings that a restart by factor variances can stand in for)."""
         return any(par.origin == "scale" and par.kind == "loading" for par in self.parameters)
 
-    @cached_property
-    def start_plan(self):
-        """What the start finder needs from this table (:func:`cfa_tool.model.starts.start_plan`), read once."""
-        from cfa_tool.model.starts import start_plan  # the start finder builds on this module
-
-        return start_plan(self)
+    def derived(self, key: str, build: Callable[[ParameterTable], object]) -> object:
+        """``build(self)``, computed once per table and kept with it: what modules built on this one
+        read from the table's structure (the start finder's plan).  Tables never change, so the
+        result never goes stale."""
+        memo = self.__dict__.setdefault("_derived", {})  # a frozen dataclass: its __dict__ holds the memo
+        if key not in memo:
+            memo[key] = build(self)
+        return memo[key]
 
     def mapping(self) -> tuple[np.ndarray, np.ndarray]:
         """(J, offset) with entries = offset + J @ theta (read-only arrays, built once per table)."""

@@ -25,6 +25,7 @@ from cfa_tool.errors import Location
 from cfa_tool.language.spec import ScaleSetting, Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import ParameterTable
+from cfa_tool.model.starts import start_plan
 
 #: A marker's standardized loading below this (in the variance-scaled solution) cannot set its factor's scale.
 DEGENERATE = 1e-3
@@ -73,7 +74,7 @@ def convert(table: ParameterTable, source: StructuredModel, theta: np.ndarray) -
     dr, dc = d[groups, np.minimum(rows, table.m - 1)], d[groups, np.minimum(cols, table.m - 1)]
     factor = np.select([codes == 0, codes == 1, codes == 2, codes == 5], [dc, dc / dr, 1.0 / (dr * dc), 1.0 / dr], 1.0)
     J, offset = table.mapping()
-    return table.start_plan.solve @ (values * factor - offset)
+    return table.derived("start plan", start_plan).solve @ (values * factor - offset)
 
 
 def same_entries(a: ParameterTable, b: ParameterTable) -> bool:

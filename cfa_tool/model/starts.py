@@ -165,7 +165,7 @@ def start_plan(table: ParameterTable) -> StartPlan:
 def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | None = None,
                     thresholds: np.ndarray | None = None) -> np.ndarray:
     """Start values for theta from a (pooled) covariance matrix, mean vector and (ordinal items) thresholds."""
-    plan = table.start_plan
+    plan = table.derived("start plan", start_plan)
     m = len(table.latent)
     sd = np.sqrt(np.clip(np.diag(S), 1e-12, None))
     R = S / np.outer(sd, sd)

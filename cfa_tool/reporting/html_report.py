@@ -3,7 +3,7 @@ assets) with everything a researcher needs for a paper."""
 
 from __future__ import annotations
 
-from cfa_tool import __version__
+from cfa_tool.version import __version__
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.diagram import path_diagram
 from cfa_tool.reporting.escape import html_text as esc

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import json
 
-from cfa_tool import __version__
+from cfa_tool.version import __version__
 
 
 def to_json(result) -> str:

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.estimation.patterns import group_patterns
+from cfa_tool.data.patterns import group_patterns
 from cfa_tool.scoring.methods import LINEAR_METHODS, ScoreMethod, Unscored
 from cfa_tool.scoring.model import ScoringModel
 from cfa_tool.scoring.weights import pattern_weights

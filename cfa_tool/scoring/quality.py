@@ -27,7 +27,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.results import clean
+from cfa_tool.numerics.plain import clean
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
 from cfa_tool.scoring.model import ScoringModel, checked_covariance
 from cfa_tool.scoring.weights import pattern_weights

@@ -2,7 +2,7 @@
 
 Every linear score is s = alpha + W' (x - mu), using only the answered items o (W is
 zero in the rows of unanswered items).  With S_o = Sigma_oo^-1 embedded in p x p
-(zeros elsewhere; :func:`cfa_tool.estimation.patterns.embedded_inverse`), R = S_o L
+(zeros elsewhere; :func:`cfa_tool.data.patterns.embedded_inverse`), R = S_o L
 and K = L' S_o L:
 
 * regression (Thurstone 1935): W = S_o L Phi = R Phi, the posterior mean
@@ -31,7 +31,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.estimation.patterns import embedded_inverse
+from cfa_tool.data.patterns import embedded_inverse
 from cfa_tool.errors import EstimationError
 from cfa_tool.scoring.methods import ScoreMethod, Unscored
 from cfa_tool.scoring.model import ScoringModel, checked_covariance

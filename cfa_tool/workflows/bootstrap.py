@@ -19,7 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import linalg
 
-from cfa_tool import distributions as dist
+from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, OptionError
@@ -80,7 +80,7 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     Entries are affine in theta; standardized values follow by the chain rule, their
     derivatives taken by central differences of the closed-form standardization."""
     from cfa_tool.assessment.standardized import standardize_entries
-    from cfa_tool.estimation.linalg import scaled_inverse
+    from cfa_tool.numerics.linalg import scaled_inverse
     from cfa_tool.fitting import FitOptions, estimate
     from cfa_tool.inference.robust import normal_weight, vech_indices
 

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from cfa_tool import distributions as dist
+from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.data.moments import SampleMoments
 from cfa_tool.fitting import Estimation, FitOptions, estimate

@@ -24,7 +24,7 @@ from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, EstimationError, OptionError
-from cfa_tool.estimation.linalg import log_det_pd
+from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.fitting import fit_moments
 from cfa_tool.language.spec import Spec
 from cfa_tool.results import FitResult, clean

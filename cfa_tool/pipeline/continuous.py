@@ -27,7 +27,7 @@ from cfa_tool.errors import CfaError, OptionError
 from cfa_tool.data.moments import MISSING_CHOICES
 from cfa_tool.estimation.fiml import MissingDataLikelihood, fiml_baseline, fiml_log_likelihood
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
-from cfa_tool.estimation.patterns import pattern_data
+from cfa_tool.data.patterns import pattern_data
 from cfa_tool.estimation.strategy import Alternative, search
 from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
 from cfa_tool.inference.standard_errors import observed_information, parameter_covariance, wald_inference
@@ -37,6 +37,7 @@ from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
+from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult
 
 ESTIMATOR = "maximum likelihood"
@@ -171,45 +172,6 @@ def fit_moments(spec: Spec, moments: SampleMoments | list[tuple[str | None, Samp
     with blas_threads_for(len(spec.observed_names)):
         est = estimate(spec, groups, options)
         return assess(spec, groups, est, options, group_column)
-
-
-SMALL_MODEL = 80  # indicators; below this one BLAS thread is faster than several
-
-
-def blas_threads_for(p: int):
-    """One BLAS thread for small models, whose matrices are too small to share out."""
-    import contextlib
-
-    if p > SMALL_MODEL:
-        return contextlib.nullcontext()
-    return _OneBlasThread(_blas_libraries())
-
-
-class _OneBlasThread:
-    """BLAS libraries run one thread inside the context and return to their numbers after it
-    (threadpoolctl's own limiter does the same with more bookkeeping, noticeable on a 1 ms fit)."""
-
-    def __init__(self, libraries: tuple) -> None:
-        self.libraries = libraries
-        self.previous: list[int] = []
-
-    def __enter__(self) -> None:
-        self.previous = [lib.num_threads for lib in self.libraries]
-        for lib, n in zip(self.libraries, self.previous):
-            if n != 1:
-                lib.set_num_threads(1)
-
-    def __exit__(self, *exc) -> None:
-        for lib, n in zip(self.libraries, self.previous):
-            if n != 1:
-                lib.set_num_threads(n)
-
-
-@lru_cache(maxsize=1)
-def _blas_libraries() -> tuple:
-    from threadpoolctl import ThreadpoolController
-
-    return tuple(lib for lib in ThreadpoolController().lib_controllers if lib.user_api == "blas")
 
 
 def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Estimation, options: FitOptions,

@@ -12,7 +12,7 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.errors import EstimationError
-from cfa_tool.estimation.patterns import PatternData
+from cfa_tool.data.patterns import PatternData
 
 
 def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float = 1e-10) -> tuple[np.ndarray, np.ndarray, int]:

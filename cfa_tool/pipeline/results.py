@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -11,22 +10,9 @@ from cfa_tool.assessment.fit_indices import FitIndices
 from cfa_tool.assessment.modification import ModificationIndex
 from cfa_tool.assessment.normality import Normality
 from cfa_tool.inference.robust import RobustFit
+from cfa_tool.numerics.plain import clean
 
 DEFAULT_MI_THRESHOLD = 3.84  # chi-square(1) critical value at alpha = .05
-
-
-def clean(value):
-    """JSON-safe: NaN and infinities become None, numpy scalars become Python numbers."""
-    if isinstance(value, (float, np.floating)):
-        value = float(value)
-        return value if math.isfinite(value) else None
-    if isinstance(value, np.integer):
-        return int(value)
-    if isinstance(value, (list, tuple)):
-        return [clean(v) for v in value]
-    if isinstance(value, dict):
-        return {k: clean(v) for k, v in value.items()}
-    return value
 
 
 @dataclass(frozen=True)

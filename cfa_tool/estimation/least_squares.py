@@ -1,0 +1,236 @@
+"""Least squares for ordinal items, one group or several: one objective.
+
+Each item j has a latent response x*_j = nu_j + Lambda_j eta + e_j and is observed in category c
+when tau_j,c-1 < x*_j <= tau_j,c.  The data are each group's sample statistics s_g (polychoric
+correlations, and with thresholds as parameters the thresholds too), their model counterparts
+sigma_g(theta), a diagonal weight W_g and the asymptotic covariance Gamma_g of sqrt(N_g)(s_g - sigma_g):
+
+    F(theta) = sum_g (N_g / N) (s_g - sigma_g(theta))' W_g (s_g - sigma_g(theta)),
+
+W_g = diag(Gamma_g)^-1 (diagonally weighted least squares; Muthen, du Toit & Spisic 1997) or the
+identity (unweighted).  N F is the statistic that the mean-and-variance adjustment corrects
+(:mod:`cfa_tool.inference.adjusted`).  The model statistics take one of two forms:
+
+* latent responses of unit variance (one group; the "delta" form): sigma = the implied
+  covariances below the diagonal, which do not depend on the residual variances, so those are
+  not parameters (they follow as 1 minus the common variance);
+* thresholds as parameters (any number of groups; Muthen & Asparouhov 2002, identified as Wu &
+  Estabrook 2016 set out): with mu = nu + Lambda alpha and Sigma the latent responses' moments,
+
+      tau~_jc = (tau_jc - mu_j) / sqrt(Sigma_jj),      rho_ij = Sigma_ij / sqrt(Sigma_ii Sigma_jj).
+
+Scoring uses 2 sum_g (N_g/N) D_g W_g D_g', the expected second derivatives for a correct model.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+
+import numpy as np
+from scipy.linalg import block_diag
+
+from cfa_tool.estimation.objective import Evaluation
+from cfa_tool.model.implied import StructuredModel, entry_derivatives
+from cfa_tool.model.rank_two import basis_vectors, second_derivative_contraction
+
+
+@dataclass(frozen=True, eq=False)
+class GroupStatistics:
+    """One group's sample statistics, their diagonal weights and asymptotic covariance."""
+
+    values: np.ndarray  # (thresholds item by item, then) correlations in np.tril_indices(p, -1) order
+    weights: np.ndarray  # the diagonal of W_g
+    gamma: np.ndarray  # asymptotic covariance of sqrt(N_g)(s_g - sigma_g)
+    n_obs: int
+
+
+def group_statistics(values: np.ndarray, gamma: np.ndarray, n_obs: int, diagonal: bool) -> GroupStatistics:
+    """Statistics with diagonal weights 1 / diag(Gamma) (``diagonal``) or unit weights."""
+    weights = 1.0 / np.diag(gamma) if diagonal else np.ones(len(values))
+    return GroupStatistics(values, weights, gamma, n_obs)
+
+
+class OrdinalLeastSquares:
+    """F(theta) of the module docstring for one group or several (see :class:`~cfa_tool.estimation.objective.Objective`).
+
+    ``thresholds``: the model statistics are standardized thresholds and correlations (thresholds
+    as parameters); otherwise correlations of latent responses of unit variance."""
+
+    def __init__(self, model: StructuredModel, groups: list[GroupStatistics], thresholds: bool):
+        self.model = model
+        self.groups = groups
+        self.thresholds = thresholds
+        self.pairs = np.tril_indices(model.p, -1)
+        self.n_total = sum(g.n_obs for g in groups)
+        self.weights = [g.n_obs / self.n_total for g in groups]
+        self.targets = [g.values for g in groups]
+        self.w = [g.weights for g in groups]
+        self.n_statistics = sum(len(t) for t in self.targets)
+        # the item of each threshold, in the stacked order of the table's matrix K
+        table = model.table
+        item = {x: j for j, x in enumerate(table.observed)}
+        positions = {par.row: item[par.variables[0]] for par in table.parameters if par.matrix == "K" and par.group == 0}
+        self.item_of = np.array([positions[k] for k in range(len(positions))], dtype=int)
+        self.n_thresholds = len(self.item_of)
+
+    def with_targets(self, values: list[np.ndarray]) -> OrdinalLeastSquares:
+        """The same objective for other statistics of the same shape (weights and Gamma kept), e.g. the
+        statistics another model implies (the nesting check of Bentler & Satorra 2010)."""
+        return OrdinalLeastSquares(self.model, [replace(g, values=np.asarray(v, dtype=float))
+                                                for g, v in zip(self.groups, values)], self.thresholds)
+
+    # -- model statistics and their derivatives
+    def _latent_moments(self, theta: np.ndarray, g: int):
+        """(matrices, Sigma, its diagonal, mu, thresholds) of group g's latent responses; None when some
+        implied variance is not positive."""
+        mats = self.model.matrices(theta, g)
+        sigma = mats.implied_covariance()
+        if not self.thresholds:  # the residual variances are not parameters: the pairs are all there is
+            return mats, sigma, None, None, None
+        var = np.diag(sigma)
+        if np.any(var <= 0) or not np.all(np.isfinite(var)):
+            return None
+        return mats, sigma, var, mats.implied_mean(), self.model.thresholds(theta, g)
+
+    def _statistics(self, moments) -> np.ndarray:
+        _, sigma, var, mu, tau = moments
+        i, j = self.pairs
+        if not self.thresholds:
+            return sigma[i, j]
+        sd = np.sqrt(var)
+        it = self.item_of
+        return np.concatenate([(tau - mu[it]) / sd[it], sigma[i, j] / (sd[i] * sd[j])])
+
+    def statistics(self, theta: np.ndarray, g: int) -> np.ndarray | None:
+        moments = self._latent_moments(theta, g)
+        return None if moments is None else self._statistics(moments)
+
+    def _transform(self, moments, d_sigma: np.ndarray, d_mu: np.ndarray, d_tau: np.ndarray) -> np.ndarray:
+        """Derivatives of the statistics from those of Sigma, mu and tau: (k, statistics)."""
+        _, sigma, var, mu, tau = moments
+        i, j = self.pairs
+        if not self.thresholds:
+            return d_sigma[:, i, j]
+        sd = np.sqrt(var)
+        it = self.item_of
+        d_var = np.diagonal(d_sigma, axis1=1, axis2=2)
+        d_thr = (d_tau - d_mu[:, it]) / sd[it] - ((tau - mu[it]) / (2.0 * sd[it] ** 3)) * d_var[:, it]
+        rho = sigma[i, j] / (sd[i] * sd[j])
+        d_rho = d_sigma[:, i, j] / (sd[i] * sd[j]) - 0.5 * rho * (d_var[:, i] / var[i] + d_var[:, j] / var[j])
+        return np.hstack([d_thr, d_rho])
+
+    def _jacobian(self, theta: np.ndarray, g: int, moments) -> np.ndarray:
+        """d sigma_g / d theta, shape (q, statistics)."""
+        if not self.thresholds:
+            return self._unit_jacobian(moments[0], g)
+        d_sigma, d_mu = self.model.jacobian(theta, g)
+        return self._transform(moments, d_sigma, d_mu, self.model.threshold_jacobian(g))
+
+    def _unit_jacobian(self, mats, g: int) -> np.ndarray:
+        """d Sigma_ij / d theta for the pairs below the diagonal.  Each entry's derivative of Sigma is
+        c (u v' + v u') for columns u, v of V = [I, C', G] (:mod:`cfa_tool.model.rank_two`), so its
+        element (i, j) is c (V_iu V_jv + V_iv V_ju): gathered for the pairs, without p x p arrays."""
+        V, _ = basis_vectors(mats, False)
+        basis = self.model.bases[g]
+        Vi, Vj = V[self.pairs[0]], V[self.pairs[1]]
+        D = basis.c * (Vi[:, basis.u] * Vj[:, basis.v] + Vi[:, basis.v] * Vj[:, basis.u])  # (pairs, active entries)
+        return D.T if self.model.identity_J[g] else self.model.active_J[g].T @ D.T
+
+    def jacobian(self, theta: np.ndarray, g: int = 0) -> np.ndarray:
+        return self._jacobian(theta, g, self._latent_moments(theta, g))
+
+    def entry_jacobian(self, theta: np.ndarray, g: int, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray) -> np.ndarray:
+        """Derivatives of group g's statistics with respect to single matrix entries (candidates of score tests)."""
+        moments = self._latent_moments(theta, g)
+        d_sigma, d_mu = entry_derivatives(moments[0], codes, rows, cols)
+        d_tau = np.zeros((len(codes), self.n_thresholds))
+        k = np.flatnonzero(codes == 6)
+        d_tau[k, rows[k]] = 1.0
+        return self._transform(moments, d_sigma, d_mu, d_tau)
+
+    # -- the objective
+    def group_discrepancy(self, theta: np.ndarray, g: int) -> float:
+        s = self.statistics(theta, g)
+        if s is None:
+            return np.inf
+        e = self.targets[g] - s
+        return float(e @ (self.w[g] * e))
+
+    def value(self, theta: np.ndarray) -> float:
+        total = 0.0
+        for g, share in enumerate(self.weights):
+            f = self.group_discrepancy(theta, g)
+            if not np.isfinite(f):
+                return np.inf
+            total += share * f
+        return total
+
+    def evaluate(self, theta: np.ndarray) -> Evaluation | None:
+        q = len(theta)
+        value, gradient, information = 0.0, np.zeros(q), np.zeros((q, q))
+        for g, share in enumerate(self.weights):
+            moments = self._latent_moments(theta, g)
+            if moments is None:
+                return None
+            e = self.targets[g] - self._statistics(moments)
+            D = self._jacobian(theta, g, moments)
+            WD = D * (share * self.w[g])[None, :]
+            value += share * float(e @ (self.w[g] * e))
+            gradient -= 2.0 * WD @ e
+            information += 2.0 * WD @ D.T
+        return Evaluation(value, gradient, information)
+
+    def gradient(self, theta: np.ndarray) -> np.ndarray:
+        """-2 sum_g (N_g/N) D_g W_g (s_g - sigma_g): what differences of the gradient (Newton's steps
+        near the minimum) need."""
+        total = np.zeros(len(theta))
+        for g, share in enumerate(self.weights):
+            moments = self._latent_moments(theta, g)
+            if moments is None:
+                return np.full(len(theta), np.nan)
+            e = self.targets[g] - self._statistics(moments)
+            total -= 2.0 * share * (self._jacobian(theta, g, moments) @ (self.w[g] * e))
+        return total
+
+    def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
+        """Second derivatives of F in closed form, for latent responses of unit variance without
+        higher-order factors (None otherwise):
+
+            H = sum_g (N_g/N) [2 D W D' - 2 tr(M d2Sigma / dtheta dtheta')],   M_ij = M_ji = w_k e_k / 2
+
+        for the pair k = (i, j), e = s - sigma the residuals; the second derivatives of Sigma are those
+        of maximum likelihood (Neudecker & Satorra 1991; :func:`cfa_tool.model.rank_two.second_derivative_contraction`)."""
+        model = self.model
+        if self.thresholds or model.higher_order:
+            return None
+        q = len(theta)
+        H = np.zeros((q, q))
+        for g, share in enumerate(self.weights):
+            mats = model.matrices(theta, g)
+            half = 0.5 * self.w[g] * (self.targets[g] - mats.implied_covariance()[self.pairs])
+            M = np.zeros((model.p, model.p))
+            M[self.pairs] = half
+            M[self.pairs[1], self.pairs[0]] = half
+            second = second_derivative_contraction(model.second_orders[g], M, mats.L, mats.P)
+            if not model.identity_J[g]:
+                J = model.active_J[g]
+                second = J.T @ second @ J
+            D = self._unit_jacobian(mats, g)
+            H += share * (2.0 * (D * self.w[g]) @ D.T - 2.0 * second)
+        return 0.5 * (H + H.T)
+
+    # -- stacked pieces for robust inference
+    def stacked(self, theta: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+        """(D of shape (q, k), residuals e, weights diag(N_g/N W_g), Gamma blockdiag(N/N_g Gamma_g)) over all groups."""
+        moments = [self._latent_moments(theta, g) for g in range(len(self.weights))]
+        D = np.hstack([self._jacobian(theta, g, m) for g, m in enumerate(moments)])
+        e = np.concatenate([self.targets[g] - self._statistics(m) for g, m in enumerate(moments)])
+        w = np.concatenate([share * wg for share, wg in zip(self.weights, self.w)])
+        gammas = [g.gamma / share for g, share in zip(self.groups, self.weights)]
+        gamma = gammas[0] if len(gammas) == 1 else block_diag(*gammas)
+        return D, e, w, gamma
+
+    def group_slices(self) -> list[slice]:
+        sizes = [len(t) for t in self.targets]
+        ends = np.cumsum(sizes)
+        return [slice(int(end - size), int(end)) for size, end in zip(sizes, ends)]

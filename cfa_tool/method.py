@@ -1,0 +1,143 @@
+"""How a model is fitted, as typed values declared once.
+
+Every choice a user makes about estimation (and every method the tool chooses itself) is a member
+of one of the enumerations below.  A member's ``value`` is the word a user types, on the command
+line and in Python; its ``label`` is the short name tables print; its ``phrase`` the words a
+methods paragraph uses.  The command line's choices, the library's checks, the reports and the
+JSON all read them here, so no code ever has to recognise a method from a sentence.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from enum import Enum
+
+from cfa_tool.errors import OptionError, printable
+
+
+class Choice(Enum):
+    """A typed choice: ``value`` the word a user types, ``label`` the name tables print, ``phrase`` the
+    words of a methods paragraph; ``offered`` says whether users may choose it (the tool picks the others)."""
+
+    def __new__(cls, word: str, label: str, phrase: str, offered: bool = True):
+        member = object.__new__(cls)
+        member._value_ = word
+        member.label = label
+        member.phrase = phrase
+        member.offered = offered
+        return member
+
+    @classmethod
+    def words(cls) -> tuple[str, ...]:
+        """The words users may give, in declaration order (the command line's choices)."""
+        return tuple(m.value for m in cls if m.offered)
+
+    @classmethod
+    def parse(cls, value: object, what: str):
+        """``value`` (a member or its word) as a member users may choose; anything else is an OptionError."""
+        if isinstance(value, cls) and value.offered:
+            return value
+        if isinstance(value, str):
+            for member in cls:
+                if member.offered and member.value == value:
+                    return member
+        shown = printable(value) if isinstance(value, str) else type(value).__name__
+        raise OptionError(f"{what} must be one of {', '.join(cls.words())}, not '{shown}'")
+
+    def __str__(self) -> str:
+        return self.value
+
+
+class Estimator(Choice):
+    MAXIMUM_LIKELIHOOD = ("maximum-likelihood", "maximum likelihood", "maximum likelihood")
+    LEAST_SQUARES = ("least-squares", "least squares", "least squares", False)
+
+
+class Weighting(Choice):
+    """The weight matrix of least squares for ordinal items."""
+
+    DIAGONAL = ("diagonally-weighted", "diagonally weighted", "diagonally weighted least squares")
+    UNWEIGHTED = ("unweighted", "unweighted", "unweighted least squares")
+
+
+class FitTest(Choice):
+    """The test of the model's fit (and the standard errors that go with it)."""
+
+    NORMAL = ("normal", "likelihood ratio", "the normal-theory likelihood-ratio test")
+    SATORRA_BENTLER = ("satorra-bentler", "Satorra-Bentler",
+                       "the Satorra-Bentler scaled test and robust standard errors")
+    YUAN_BENTLER = ("yuan-bentler", "Yuan-Bentler", "the Yuan-Bentler scaled test and robust standard errors")
+    SCALE_SHIFTED = ("scale-shifted", "scale-shifted, mean and variance adjusted (Asparouhov & Muthen 2010)",
+                     "mean-and-variance adjusted (scale-shifted) chi-square test", False)
+
+    @property
+    def robust(self) -> bool:
+        """Whether the test is a corrected one with robust (sandwich) standard errors."""
+        return self is not FitTest.NORMAL
+
+
+class Information(Choice):
+    """Where the standard errors come from."""
+
+    EXPECTED = ("expected", "expected information", "the expected information")
+    OBSERVED = ("observed", "observed information", "the observed information")
+    SANDWICH = ("sandwich", "robust (sandwich)", "robust (sandwich) standard errors", False)
+
+
+class MissingData(Choice):
+    """What happens to rows with missing answers on model variables."""
+
+    LISTWISE = ("listwise", "listwise deletion", "listwise deletion")
+    FULL_INFORMATION = ("full-information", "full information", "full-information maximum likelihood")
+
+
+class Items(Choice):
+    """How the items are analysed."""
+
+    CONTINUOUS = ("continuous", "continuous items", "continuous items", False)
+    ORDINAL = ("ordinal", "ordinal items", "ordinal items", False)
+    # ordinal items with continuous ones beside them (polyserial correlations)
+    MIXED = ("mixed", "ordinal and continuous items", "ordinal items with continuous items beside them", False)
+
+
+@dataclass(frozen=True)
+class FitMethod:
+    """Exactly how a model was fitted."""
+
+    estimator: Estimator
+    test: FitTest
+    information: Information
+    missing: MissingData
+    weighting: Weighting | None = None  # least squares only
+    items: Items = Items.CONTINUOUS
+    thresholds: bool = False  # ordinal items: thresholds are parameters (the form used with groups)
+
+    @property
+    def ordinal(self) -> bool:
+        return self.items is not Items.CONTINUOUS
+
+    @property
+    def full_information(self) -> bool:
+        return self.missing is MissingData.FULL_INFORMATION
+
+    def sentence(self, groups: int = 1) -> str:
+        """The estimation in one line, as the report's status line and the JSON's ``estimator`` give it."""
+        if self.ordinal:
+            if self.thresholds:
+                return (f"{self.weighting.label} least squares on thresholds and polychoric correlations (ordinal items, "
+                        f"{groups} groups), robust standard errors")
+            extra = ", with polyserial correlations for continuous items" if self.items is Items.MIXED else ""
+            return f"{self.weighting.label} least squares on polychoric correlations (ordinal items{extra}), robust standard errors"
+        text = self.estimator.label
+        if self.test is FitTest.SATORRA_BENTLER:
+            text += " with Satorra-Bentler scaled test and robust standard errors"
+        elif self.test is FitTest.YUAN_BENTLER:
+            text += " with Yuan-Bentler scaled test and robust (Huber-White) standard errors"
+        if self.full_information:
+            text += " (full information, incomplete rows included)"
+        return text
+
+    def to_dict(self) -> dict:
+        return {"estimator": self.estimator.value, "test": self.test.value, "information": self.information.value,
+                "missing": self.missing.value, "weighting": self.weighting.value if self.weighting else None,
+                "items": self.items.value, "thresholds_as_parameters": self.thresholds}

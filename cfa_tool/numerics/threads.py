@@ -1,0 +1,44 @@
+"""BLAS threads for small problems: one thread is faster than several when the matrices are too
+small to share out (a factor model of a few dozen items)."""
+
+from __future__ import annotations
+
+import contextlib
+from functools import lru_cache
+
+SMALL_MODEL = 80  # indicators; below this one BLAS thread is faster than several
+
+
+def blas_threads_for(p: int):
+    """A context with one BLAS thread for problems of ``p`` variables up to :data:`SMALL_MODEL`
+    (nothing changes for larger ones)."""
+    if p > SMALL_MODEL:
+        return contextlib.nullcontext()
+    return _OneBlasThread(_blas_libraries())
+
+
+class _OneBlasThread:
+    """BLAS libraries run one thread inside the context and return to their numbers after it
+    (threadpoolctl's own limiter does the same with more bookkeeping, noticeable on a 1 ms fit)."""
+
+    def __init__(self, libraries: tuple) -> None:
+        self.libraries = libraries
+        self.previous: list[int] = []
+
+    def __enter__(self) -> None:
+        self.previous = [lib.num_threads for lib in self.libraries]
+        for lib, n in zip(self.libraries, self.previous):
+            if n != 1:
+                lib.set_num_threads(1)
+
+    def __exit__(self, *exc) -> None:
+        for lib, n in zip(self.libraries, self.previous):
+            if n != 1:
+                lib.set_num_threads(n)
+
+
+@lru_cache(maxsize=1)
+def _blas_libraries() -> tuple:
+    from threadpoolctl import ThreadpoolController
+
+    return tuple(lib for lib in ThreadpoolController().lib_controllers if lib.user_api == "blas")
