@@ -31,7 +31,7 @@ sys.path.insert(0, str(ROOT))
 import cfa_tool  # noqa: E402
 from cfa_tool.assessment.modification import modification_indices  # noqa: E402
 from cfa_tool.data.moments import sample_moments  # noqa: E402
-from cfa_tool.fitting import FitOptions, estimate  # noqa: E402
+from cfa_tool.pipeline.continuous import FitOptions, estimate  # noqa: E402
 from cfa_tool.language import parse_model  # noqa: E402
 from cfa_tool.language.checks import exogenous_factors  # noqa: E402
 

@@ -29,7 +29,7 @@ sys.path.insert(0, str(ROOT / "bench"))
 from run import interleaved, simulated, timed  # noqa: E402
 
 from cfa_tool.data.moments import sample_moments  # noqa: E402
-from cfa_tool.fitting import FitOptions, estimate  # noqa: E402
+from cfa_tool.pipeline.continuous import FitOptions, estimate  # noqa: E402
 from cfa_tool.numerics.threads import blas_threads_for  # noqa: E402
 from cfa_tool.language import parse_model  # noqa: E402
 from cfa_tool.scoring.linear import row_blocks, score_blocks, score_rows  # noqa: E402

@@ -12,7 +12,7 @@ __all__ = ["fit", "check", "bootstrap", "cutoffs", "parse_model", "__version__"]
 
 def __getattr__(name: str):
     if name in ("fit", "check", "bootstrap", "cutoffs"):
-        from cfa_tool import api
+        from cfa_tool.pipeline import inputs as api
 
         return getattr(api, name)
     if name == "parse_model":

@@ -273,13 +273,13 @@ def _run(args: argparse.Namespace) -> int:
         args.model = str(resource_dir("models") / "rider_three_factors.cfa")
         args.data = str(resource_dir("demo") / "rider_survey.csv")
     _check_output(args, _inputs(args))
-    # model files are paths, never model text (cfa_tool.api.load_spec reads a Path as a file)
+    # model files are paths, never model text (cfa_tool.pipeline.inputs.load_spec reads a Path as a file)
     if getattr(args, "model", None):
         args.model = Path(args.model)
     if getattr(args, "models", None):
         args.models = [Path(m) for m in args.models]
     if args.command == "check":
-        from cfa_tool.api import check
+        from cfa_tool.pipeline.inputs import check
 
         found = check(args.model, args.data, group=args.group, sheet=args.sheet, missing_codes=args.missing_codes,
                       keep=args.keep)
@@ -379,14 +379,14 @@ def _simulation_command(args: argparse.Namespace) -> int:
                                        args.workers, args.cluster, advance)
             render = W.render_montecarlo
         elif args.command == "bootstrap":
-            from cfa_tool.api import bootstrap
+            from cfa_tool.pipeline.inputs import bootstrap
 
             result = _Pair(bootstrap(args.model, args.data, args.replications, args.seed, workers=args.workers,
                                      cluster=args.cluster, progress=advance, sheet=args.sheet,
                                      missing_codes=args.missing_codes, keep=args.keep))
             render = W.render_bootstrap
         else:
-            from cfa_tool.api import cutoffs
+            from cfa_tool.pipeline.inputs import cutoffs
 
             result = _Pair(cutoffs(args.model, args.data, args.replications, args.seed, args.workers, args.cluster,
                                    advance, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep))
@@ -564,7 +564,7 @@ def _console():
 
 
 def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
-    from cfa_tool.api import fit
+    from cfa_tool.pipeline.inputs import fit
     from cfa_tool.reporting.terminal import render
 
     result = fit(model, data, group=args.group, reference_group=args.reference_group, sheet=args.sheet,

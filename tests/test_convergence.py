@@ -27,11 +27,11 @@ from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.errors import EstimationError
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood
 from cfa_tool.estimation.optimizer import Outcome, drift, minimise
-from cfa_tool.fitting import FitOptions, fit_moments, model_structure
+from cfa_tool.pipeline.continuous import FitOptions, fit_moments, model_structure
 from cfa_tool.language import parse_model
 from cfa_tool.model.rescale import Unscalable, convert
 from cfa_tool.model.starts import starting_values
-from cfa_tool.ordinal_fitting import fit_ordinal
+from cfa_tool.pipeline.ordinal import fit_ordinal
 from tests.corpus import Case, corpus_cases, questionnaire
 
 LONG_RUN = int(os.environ.get("CFA_CONVERGENCE_CASES", "0"))

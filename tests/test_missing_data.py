@@ -181,9 +181,9 @@ def test_yuan_bentler_scaling_is_near_one_for_normal_data_with_gaps():
 def test_closed_form_fiml_hessian_matches_differences_of_the_gradient(hs_holes, group, extra):
     # the observed information used for standard errors under MAR, in closed form, against central
     # differences of the row-by-row gradient (with groups: free factor means, whose second derivatives enter)
-    from cfa_tool.api import moments_for
+    from cfa_tool.pipeline.inputs import moments_for
     from cfa_tool.numerics.linalg import difference_hessian
-    from cfa_tool.fitting import FitOptions, estimate
+    from cfa_tool.pipeline.continuous import FitOptions, estimate
     from cfa_tool.language import parse_model
 
     spec = parse_model(THREE_FACTORS + extra)

@@ -190,10 +190,10 @@ def test_adjusted_difference_tests_hold_their_level_under_invariance():
     # about 5% below .05 (60 replications: the mean has a standard error of about .04)
     from dataclasses import replace
 
-    from cfa_tool.api import ordinal_groups
-    from cfa_tool.fitting import FitOptions
+    from cfa_tool.pipeline.inputs import ordinal_groups
+    from cfa_tool.pipeline.continuous import FitOptions
     from cfa_tool.language import parse_model
-    from cfa_tool.ordinal_fitting import estimate_ordinal_groups, ordinal_difference
+    from cfa_tool.pipeline.ordinal import estimate_ordinal_groups, ordinal_difference
 
     spec = parse_model(MODEL)
     p_values = {"thresholds": [], "metric": []}

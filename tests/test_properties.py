@@ -144,8 +144,8 @@ def test_counting_rule_is_checked_before_fitting(hs_data):
 def test_rank_two_derivatives_equal_the_trace_formulas(hs_data, extra, group):
     # gradient tr(M D_a) - 2 d' S^-1 dmu_a and expected second derivatives tr(S^-1 D_a S^-1 D_b)
     # + 2 dmu_a' S^-1 dmu_b (Browne 1974), from full derivative matrices, against the rank-two path
-    from cfa_tool.api import moments_for
-    from cfa_tool.fitting import FitOptions, estimate
+    from cfa_tool.pipeline.inputs import moments_for
+    from cfa_tool.pipeline.continuous import FitOptions, estimate
     from cfa_tool.language import parse_model
 
     spec = parse_model(THREE_FACTORS + extra)
@@ -172,9 +172,9 @@ def test_rank_two_derivatives_equal_the_trace_formulas(hs_data, extra, group):
 def test_closed_form_hessian_equals_differences_of_the_gradient(hs_data, extra):
     # the complete-data observed Hessian (second derivatives of Sigma laid out once per model,
     # Neudecker & Satorra 1991) against central differences of the analytic gradient, away from the minimum
-    from cfa_tool.api import moments_for
+    from cfa_tool.pipeline.inputs import moments_for
     from cfa_tool.numerics.linalg import difference_hessian
-    from cfa_tool.fitting import FitOptions, estimate
+    from cfa_tool.pipeline.continuous import FitOptions, estimate
     from cfa_tool.language import parse_model
 
     spec = parse_model(THREE_FACTORS + extra)
@@ -196,7 +196,7 @@ def test_closed_form_hessian_equals_differences_of_the_gradient(hs_data, extra):
 def test_least_squares_derivatives_equal_the_full_derivative_matrices(text):
     # d rho / d theta of the ordinal least-squares objective, gathered from the rank-two basis, against the
     # below-diagonal elements of the (q, p, p) derivative matrices of the general path (Neudecker & Satorra 1991)
-    from cfa_tool.estimation.dwls import WeightedLeastSquares
+    from cfa_tool.estimation.least_squares import GroupStatistics, OrdinalLeastSquares
     from cfa_tool.language import parse_model
     from cfa_tool.model.implied import StructuredModel
     from cfa_tool.model.parameters import build_parameter_table
@@ -204,7 +204,7 @@ def test_least_squares_derivatives_equal_the_full_derivative_matrices(text):
     table = build_parameter_table(parse_model(text))
     model = StructuredModel(table)
     n_pairs = table.p * (table.p - 1) // 2
-    ls = WeightedLeastSquares(model, np.zeros(n_pairs), np.ones(n_pairs), 100)
+    ls = OrdinalLeastSquares(model, [GroupStatistics(np.zeros(n_pairs), np.ones(n_pairs), np.eye(n_pairs), 100)], thresholds=False)
     theta = 0.5 + 0.3 * np.random.default_rng(8).normal(size=table.n_free)
     d_sigma, _ = model.jacobian(theta)
     np.testing.assert_allclose(ls.jacobian(theta), d_sigma[:, ls.pairs[0], ls.pairs[1]], rtol=0, atol=1e-12)
@@ -218,7 +218,7 @@ def test_least_squares_derivatives_equal_the_full_derivative_matrices(text):
 def test_least_squares_hessian_equals_differences_of_the_gradient(text):
     # the closed-form second derivatives of the ordinal least-squares discrepancy against central differences of
     # its analytic gradient, away from the minimum (residuals and weights drawn at random)
-    from cfa_tool.estimation.dwls import WeightedLeastSquares
+    from cfa_tool.estimation.least_squares import GroupStatistics, OrdinalLeastSquares
     from cfa_tool.numerics.linalg import difference_hessian
     from cfa_tool.language import parse_model
     from cfa_tool.model.implied import StructuredModel
@@ -228,7 +228,8 @@ def test_least_squares_hessian_equals_differences_of_the_gradient(text):
     model = StructuredModel(table)
     n_pairs = table.p * (table.p - 1) // 2
     rng = np.random.default_rng(2)
-    ls = WeightedLeastSquares(model, rng.uniform(-0.3, 0.6, n_pairs), rng.uniform(0.5, 2.0, n_pairs), 100)
+    ls = OrdinalLeastSquares(model, [GroupStatistics(rng.uniform(-0.3, 0.6, n_pairs), rng.uniform(0.5, 2.0, n_pairs),
+                                                     np.eye(n_pairs), 100)], thresholds=False)
     theta = 0.5 + 0.3 * rng.normal(size=table.n_free)
     numeric = difference_hessian(ls.gradient, theta, central=True)
     assert np.allclose(ls.observed_hessian(theta), numeric, atol=1e-6 * np.abs(numeric).max())

@@ -124,7 +124,7 @@ def test_scaled_difference_shrinks_with_heavy_tails():
 def test_robust_test_needs_raw_rows():
     from cfa_tool.data.moments import SampleMoments
     from cfa_tool.errors import OptionError
-    from cfa_tool.fitting import FitOptions, fit_moments
+    from cfa_tool.pipeline.continuous import FitOptions, fit_moments
     from cfa_tool.language import parse_model
 
     cov = np.array([[1.0, 0.5, 0.4], [0.5, 1.0, 0.45], [0.4, 0.45, 1.0]])

@@ -12,8 +12,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from cfa_tool.api import prepare
-from cfa_tool.fitting import FitOptions, estimate
+from cfa_tool.pipeline.inputs import prepare
+from cfa_tool.pipeline.continuous import FitOptions, estimate
 from cfa_tool.scoring.linear import score_rows
 from cfa_tool.scoring.methods import ScoreMethod
 from cfa_tool.scoring.model import score_inputs

@@ -12,9 +12,9 @@ import numpy as np
 import pytest
 from scipy.linalg import sqrtm
 
-from cfa_tool.api import moments_for, prepare, read_inputs
+from cfa_tool.pipeline.inputs import moments_for, prepare, read_inputs
 from cfa_tool.assessment.reliability import reliability
-from cfa_tool.fitting import FitOptions, estimate
+from cfa_tool.pipeline.continuous import FitOptions, estimate
 from cfa_tool.resources import resource_dir
 from cfa_tool.scoring.linear import score_rows
 from cfa_tool.scoring.methods import ScoreMethod, Unscored

@@ -12,9 +12,9 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from cfa_tool.api import moments_for, read_inputs
+from cfa_tool.pipeline.inputs import moments_for, read_inputs
 from cfa_tool.data.patterns import group_patterns, pattern_data
-from cfa_tool.fitting import FitOptions, estimate
+from cfa_tool.pipeline.continuous import FitOptions, estimate
 from cfa_tool.resources import resource_dir
 from cfa_tool.scoring.linear import LinearScorer, score_blocks, score_groups, score_rows
 from cfa_tool.scoring.methods import ScoreMethod, Unscored

@@ -153,10 +153,10 @@ def test_rows_without_answers_and_unknown_categories():
 
 
 def test_eap_scores_from_a_two_group_ordinal_fit_average_to_each_groups_factor_means():
-    from cfa_tool.api import ordinal_groups
-    from cfa_tool.fitting import FitOptions
+    from cfa_tool.pipeline.inputs import ordinal_groups
+    from cfa_tool.pipeline.continuous import FitOptions
     from cfa_tool.language.parser import parse_model
-    from cfa_tool.ordinal_fitting import estimate_ordinal_groups
+    from cfa_tool.pipeline.ordinal import estimate_ordinal_groups
 
     rng = np.random.default_rng(8)
     frames = []

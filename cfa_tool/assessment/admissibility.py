@@ -33,27 +33,14 @@ class ProblemKind(enum.Enum):
     EMPIRICALLY_UNDERIDENTIFIED = "empirically under-identified"
 
 
-Entry = tuple[str, tuple[str, ...]]  # an estimate's kind and variables, e.g. ("residual_variance", ("x9",))
-
-
 @dataclass(frozen=True)
 class Problem:
     kind: ProblemKind
-    parameters: tuple[str, ...]  # labels such as 'variance(x9)'
+    parameters: tuple[str, ...]  # labels such as 'variance(x9)' (with ' in group g' when there are groups)
     value: float | None
     explanation: str
     advice: str
     group: str | None = None
-    # the estimates the problem shows in (their rows and diagram elements are marked); the variables of a
-    # covariance in either order
-    entries: tuple[Entry, ...] = ()
-
-    def affects(self, kind: str, variables: tuple[str, ...], group: str | None) -> bool:
-        """Whether the estimate (kind, variables) of ``group`` is one the problem shows in."""
-        if self.group is not None and group != self.group:
-            return False
-        names = frozenset(variables)
-        return any(k == kind and frozenset(v) == names for k, v in self.entries)
 
     def to_dict(self) -> dict:
         value = None if self.value is None or not np.isfinite(self.value) else float(self.value)
@@ -90,20 +77,18 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
             se = se_of.get(label)
             chance = (f" Its standard error is {_fmt(se)}, so it is {'not ' if theta / se > -1.96 else ''}clearly below "
                       f"zero (z = {theta / se:.2f}).") if se and np.isfinite(se) and se > 0 else ""
-            loadings = tuple(("loading", (latent[j], x)) for j in np.flatnonzero(mats.L[i]))
             out.append(Problem(
                 ProblemKind.NEGATIVE_RESIDUAL_VARIANCE, (label,), float(theta),
                 f"The residual (error) variance of {x} is negative ({_fmt(theta)}), so the factors would explain more than "
                 f"all of its variance (R-squared {r2:.3f}): impossible for real data.{chance}",
-                HEYWOOD_ADVICE, group, (("residual_variance", (x,)),) + loadings))
+                HEYWOOD_ADVICE, group))
     for j, f in enumerate(latent):
         if mats.P[j, j] < 0:
             out.append(Problem(
                 ProblemKind.NEGATIVE_FACTOR_VARIANCE, (f"variance({f})",), float(mats.P[j, j]),
                 f"The variance of factor {f} is negative ({_fmt(mats.P[j, j])}): impossible for a real trait.",
                 "Check that its indicators measure one thing (their correlations should be clearly positive after "
-                "reversing reverse-keyed items) and that the factor has enough indicators.", group,
-                (("factor_variance", (f,)),)))
+                "reversing reverse-keyed items) and that the factor has enough indicators.", group))
     phi = mats.latent_covariance()
     d = np.diag(phi)
     if len(latent) > 1 and np.all(d > 0):
@@ -116,8 +101,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
                         float(corr[i, j]),
                         f"The correlation of factors {latent[j]} and {latent[i]} is {corr[i, j]:.3f}, beyond +/-1: impossible.",
                         "The two factors are not distinct in these data: consider one factor for both items sets, or "
-                        "look for cross-loadings and residual covariances that the model leaves out.", group,
-                        (("factor_covariance", (latent[j], latent[i])),)))
+                        "look for cross-loadings and residual covariances that the model leaves out.", group))
         if not any(p.kind is ProblemKind.FACTOR_CORRELATION_BEYOND_ONE for p in out) and np.linalg.eigvalsh(phi)[0] < 0:
             out.append(Problem(
                 ProblemKind.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(f"variance({f})" for f in latent),
@@ -125,9 +109,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
                 "The factor covariance matrix is not positive definite (its smallest eigenvalue is below zero): some "
                 "combination of the factors would have a negative variance.",
                 "Some factors are nearly linear combinations of others; look at the factor correlations close to 1 in size "
-                "and consider merging factors.", group,
-                tuple(("factor_covariance", (latent[b], latent[a])) for a in range(len(latent)) for b in range(a)
-                      if phi[a, b] != 0)))
+                "and consider merging factors.", group))
     t_diag = np.diag(mats.T)
     off = [(i, j) for i in range(len(observed)) for j in range(i) if mats.T[i, j] != 0]
     for i, j in off:
@@ -138,7 +120,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
                     ProblemKind.RESIDUAL_CORRELATION_BEYOND_ONE, (f"covariance({observed[j]}, {observed[i]})",), float(r),
                     f"The residual correlation of {observed[j]} and {observed[i]} is {r:.3f}, beyond +/-1: impossible.",
                     "The residual covariance leaves the two items' residuals more alike than identical; remove it or "
-                    "model what the two items share as a factor.", group, (("residual_covariance", (observed[j], observed[i])),)))
+                    "model what the two items share as a factor.", group))
     if off and np.all(t_diag > 0) and not any(p.kind is ProblemKind.RESIDUAL_CORRELATION_BEYOND_ONE for p in out):
         scale = 1.0 / np.sqrt(t_diag)
         if np.linalg.eigvalsh(mats.T * np.outer(scale, scale))[0] < -1e-10:
@@ -147,8 +129,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
                                                                                for i, j in off), None,
                 "The residual covariance matrix is not positive definite: the residual covariances together imply a "
                 "negative variance for some combination of the items.",
-                "Too many or too large residual covariances: remove those the theory does not call for.", group,
-                tuple(("residual_covariance", (observed[j], observed[i])) for i, j in off)))
+                "Too many or too large residual covariances: remove those the theory does not call for.", group))
     sd_obs = np.sqrt(np.clip(total, 1e-300, None))
     sd_lat = np.sqrt(np.clip(d, 1e-300, None))
     std = mats.L * sd_lat[None, :] / sd_obs[:, None]
@@ -160,14 +141,12 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
             ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, (f"loading({latent[j]}, {observed[i]})",), float(std[i, j]),
             f"The standardized loading of {observed[i]} on {latent[j]} is {std[i, j]:.3f}, above 1 in size.",
             "With a cross-loading or correlated factors this can be legitimate; otherwise treat it as "
-            "a Heywood case. " + HEYWOOD_ADVICE, group, (("loading", (latent[j], observed[i])),)))
+            "a Heywood case. " + HEYWOOD_ADVICE, group))
     return out
 
 
-def bound_problems(labels: tuple[str, ...], theta: np.ndarray, lower: np.ndarray, upper: np.ndarray,
-                   entries: tuple[Entry, ...] | None = None) -> list[Problem]:
-    """Free parameters held at a bound that the model sets: the unrestricted estimate lies beyond it.
-    ``entries``: each free parameter's estimate (kind, variables), for marking."""
+def bound_problems(labels: tuple[str, ...], theta: np.ndarray, lower: np.ndarray, upper: np.ndarray) -> list[Problem]:
+    """Free parameters held at a bound that the model sets: the unrestricted estimate lies beyond it."""
     out = []
     for k, label in enumerate(labels):
         for limit, word in ((lower[k], "lower"), (upper[k], "upper")):
@@ -177,12 +156,11 @@ def bound_problems(labels: tuple[str, ...], theta: np.ndarray, lower: np.ndarray
                     f"{label} is held at its {word} bound ({limit:g}): without the bound the estimate would lie beyond it, "
                     f"so the reported fit and standard errors describe a restricted solution.",
                     "Report the bound; the standard errors and tests near a bound are not reliable (the estimate's "
-                    "sampling distribution is cut off there).", None, (entries[k],) if entries else ()))
+                    "sampling distribution is cut off there).", None))
     return out
 
 
-def identification_problems(labels: tuple[str, ...], se: np.ndarray, estimates: np.ndarray,
-                            entries: tuple[Entry, ...] | None = None) -> list[Problem]:
+def identification_problems(labels: tuple[str, ...], se: np.ndarray, estimates: np.ndarray) -> list[Problem]:
     """Empirical under-identification: standard errors so large relative to the estimates that the data
     barely determine those parameters (Kenny 1979 describes the typical cases: a factor with two indicators
     whose correlation with other factors is near zero, or a loading near zero on a factor with three)."""
@@ -195,7 +173,7 @@ def identification_problems(labels: tuple[str, ...], se: np.ndarray, estimates: 
         "The data barely determine " + ", ".join(labels[k] for k in weak[:5]) + (" and others" if len(weak) > 5 else "")
         + ": their standard errors are huge, so the model is close to not identified with these data.",
         "Check factors with two indicators (they need a clear correlation with another factor) and loadings near zero; "
-        "fix or drop what the data cannot inform.", None, tuple(entries[k] for k in weak) if entries else ())]
+        "fix or drop what the data cannot inform.", None)]
 
 
 def not_converged(message: str, max_iterations: int) -> Problem:
@@ -205,22 +183,6 @@ def not_converged(message: str, max_iterations: int) -> Problem:
                    f"the iteration limit (now {max_iterations}).")
 
 
-def assess_solution(*, converged: bool, message: str, max_iterations: int,
-                    groups: list[tuple[str | None, ModelMatrices, dict[str, float]]], observed: tuple[str, ...],
-                    latent: tuple[str, ...], labels: tuple[str, ...], entries: tuple[Entry, ...], theta: np.ndarray,
-                    lower: np.ndarray, upper: np.ndarray, se: np.ndarray | None) -> tuple[Problem, ...]:
-    """The one admissibility assessment of a solution: every problem, in the order a reader needs them.
-
-    ``groups``: each group's (label, model matrices as reported, standard errors of its variances by
-    label); ``labels`` and ``entries`` name each free parameter; ``se`` their standard errors (None
-    without standard errors).  A search that did not converge is the only problem reported: its
-    estimates are no solution, so nothing else about them can be judged."""
-    if not converged:
-        return (not_converged(message, max_iterations),)
-    out: list[Problem] = []
-    for label, mats, se_of in groups:
-        out.extend(matrix_problems(mats, observed, latent, label, se_of))
-    out.extend(bound_problems(labels, theta, lower, upper, entries))
-    if se is not None:
-        out.extend(identification_problems(labels, se, theta, entries))
-    return tuple(out)
+def admissibility_warnings(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[str, ...]) -> list[str]:
+    """The same assessment as one line per problem (for notes)."""
+    return [p.explanation for p in matrix_problems(mats, observed, latent)]

@@ -24,17 +24,15 @@ import numpy as np
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.numerics.linalg import scaled_inverse
-from cfa_tool.assessment.fit_indices import cfi_from, rmsea_from, rmsea_interval, tli_from
 from cfa_tool.estimation.ml import NormalLikelihood
-from cfa_tool.method import FitTest
 from cfa_tool.model.implied import StructuredModel
 
 
 @dataclass(frozen=True)
 class RobustFit:
-    """A corrected test statistic with the robust fit indices computed from it."""
+    """Scaled test and robust fit indices (Satorra-Bentler)."""
 
-    test: FitTest  # which correction
+    method: str
     scaling_factor: float
     chi_square_scaled: float
     df: int
@@ -48,9 +46,8 @@ class RobustFit:
 
     def to_dict(self) -> dict:
         d = asdict(self)
-        del d["test"]
         d["rmsea_robust_ci90"] = list(self.rmsea_robust_ci90)
-        return {"method": self.test.label, **d}
+        return d
 
 
 def vech_indices(p: int) -> tuple[np.ndarray, np.ndarray]:
@@ -135,25 +132,29 @@ def baseline_trace(likelihood: NormalLikelihood) -> float:
 
 
 def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, base_df: int, base_trace: float,
-               n_obs: int, n_groups: int, test: FitTest = FitTest.SATORRA_BENTLER) -> RobustFit:
-    """Scaled statistic T / c, c = tr(U Gamma) / df, and robust indices from the noncentrality T - c df."""
+               n_obs: int, n_groups: int, method: str = "Satorra-Bentler") -> RobustFit:
     c = trace_ug / df if df > 0 else float("nan")
     cb = base_trace / base_df
     scaled = chi_square / c if df > 0 else float("nan")
     lam = max(chi_square - c * df, 0.0)
     lam_b = max(base_chi - cb * base_df, 0.0)
-    low, high = rmsea_interval(scaled, df, n_obs, n_groups)
-    scale = np.sqrt(c) if df > 0 else float("nan")
+    cfi = 1.0 - lam / max(lam, lam_b) if max(lam, lam_b) > 0 else 1.0
+    tli = 1.0 - (lam / df) / (lam_b / base_df) if lam_b > 0 and df > 0 else float("nan")
+    rmsea = float(np.sqrt(lam / (n_obs * df)) * np.sqrt(n_groups)) if df > 0 else float("nan")
+    from cfa_tool.assessment.fit_indices import rmsea_interval
+
+    low, high = rmsea_interval(scaled, df, n_obs)
+    scale = np.sqrt(c * n_groups) if df > 0 else float("nan")
     return RobustFit(
-        test=test,
+        method=method,
         scaling_factor=float(c),
         chi_square_scaled=float(scaled),
         df=df,
         p_value_scaled=float(dist.chi2_sf(scaled, df)) if df > 0 else float("nan"),
         baseline_scaling_factor=float(cb),
         baseline_chi_square_scaled=float(base_chi / cb),
-        cfi_robust=cfi_from(lam, lam_b),
-        tli_robust=tli_from(lam, df, lam_b, base_df),
-        rmsea_robust=rmsea_from(lam, df, n_obs, n_groups),
+        cfi_robust=float(cfi),
+        tli_robust=float(tli),
+        rmsea_robust=rmsea,
         rmsea_robust_ci90=(float(low * scale), float(high * scale)),
     )

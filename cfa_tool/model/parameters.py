@@ -10,7 +10,7 @@ Bollen 1989, ch. 7; Sorbom 1974 for the mean structure):
 * ``T`` (p x p, symmetric): residual (error) variances and covariances;
 * ``N`` (p): indicator intercepts and ``M`` (m): factor means, with groups only;
 * ``K``: thresholds of ordinal items (all steps of all ordinal items, stacked),
-  with groups only; they enter no moment matrix (see :mod:`cfa_tool.estimation.ordinal`).
+  with groups only; they enter no moment matrix (see :mod:`cfa_tool.estimation.least_squares`).
 
 Implied moments: Sigma = L A P A' L' + T and mu = N + L A M, A = (I - B)^-1.
 

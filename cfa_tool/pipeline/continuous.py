@@ -38,7 +38,7 @@ from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult
+from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult
 
 ESTIMATOR = "maximum likelihood"
 INFORMATION_CHOICES = ("expected", "observed")

@@ -17,11 +17,11 @@ from cfa_tool.data.readers import LoadedData, read_data
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file, summary_moments
 from cfa_tool import options as opt
 from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
-from cfa_tool.fitting import FitOptions, fit_moments
-from cfa_tool.ordinal_fitting import ORDINAL_METHODS
+from cfa_tool.pipeline.continuous import FitOptions, fit_moments
+from cfa_tool.pipeline.ordinal import ORDINAL_METHODS
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec
-from cfa_tool.results import CheckResult, FitResult
+from cfa_tool.pipeline.results import CheckResult, FitResult
 
 
 def load_spec(model: str | os.PathLike | Spec) -> Spec:
@@ -294,7 +294,7 @@ def converged(result: FitResult) -> FitResult:
 
 def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: set[str], group: str | None,
                  reference_group: str | None, fit_options, method: str) -> FitResult:
-    from cfa_tool import ordinal_fitting
+    from cfa_tool.pipeline import ordinal as ordinal_fitting
 
     check_ordinal_options(fit_options)
     if group is None:

@@ -4,7 +4,7 @@ One group: least squares on the polychoric correlations with the latent response
 standardized (their residual variances follow from unit total variances).
 Several groups: least squares on each group's thresholds and correlations, with
 thresholds as parameters so that they can be held equal across groups
-(:mod:`cfa_tool.estimation.ordinal`).  Both give robust standard errors, the
+(:mod:`cfa_tool.estimation.least_squares`, one objective for both).  Both give robust standard errors, the
 mean-and-variance adjusted and scale-shifted tests, and modification indices as
 robust score tests.
 """
@@ -20,14 +20,15 @@ from cfa_tool.assessment.admissibility import admissibility_warnings
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.fit_indices import FitIndices, chi_square_p, cfi_value, rmsea_interval, rmsea_value, tli_value
 from cfa_tool.assessment.identification import check_information_rank
-from cfa_tool.assessment.modification import ModificationIndex, candidate_arrays, candidate_entries
+from cfa_tool.assessment.modification import (ModificationIndex, candidate_arrays, candidate_entries,
+                                               least_squares_score_tests)
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.errors import CfaError, OptionError
-from cfa_tool.estimation.dwls import (AdjustedTest, WeightedLeastSquares, adjusted_statistics, adjusted_test,
-                                      residual_weights, robust_covariance)
+from cfa_tool.estimation.least_squares import OrdinalLeastSquares, group_statistics
 from cfa_tool.estimation.strategy import Alternative, search
-from cfa_tool.estimation.ordinal import GroupedOrdinalLeastSquares, least_squares_score_tests
+from cfa_tool.inference.adjusted import (AdjustedTest, adjusted_statistics, adjusted_test, residual_weights,
+                                         robust_covariance)
 from cfa_tool.inference.robust import RobustFit
 from cfa_tool.inference.standard_errors import wald_inference
 from cfa_tool.language.checks import exogenous_factors
@@ -36,8 +37,8 @@ from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
-from cfa_tool.fitting import estimate_rows
-from cfa_tool.results import DataSummary, FitResult, GroupResult
+from cfa_tool.pipeline.continuous import estimate_rows
+from cfa_tool.pipeline.results import DataSummary, FitResult, GroupResult
 
 ORDINAL_METHODS = ("diagonally-weighted", "unweighted")
 ORDINAL_NOTE = ("With ordinal items the fit indices come from the scale-shifted adjusted statistic; they were developed for "
@@ -119,9 +120,10 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
     pairs = np.tril_indices(p, -1)
     take = [index_of[tuple(sorted((order[i], order[j]), reverse=True))] for i, j in zip(*pairs)]
     gamma = moments.gamma[np.ix_(take, take)]
-    weights = 1.0 / np.diag(gamma) if method == "diagonally-weighted" else np.ones(len(take))
+    statistics = [group_statistics(R[pairs], gamma, moments.n_obs, method == "diagonally-weighted")]
+    weights = statistics[0].weights
     model = StructuredModel(table)
-    ls = WeightedLeastSquares(model, R[pairs], weights, moments.n_obs)
+    ls = OrdinalLeastSquares(model, statistics, thresholds=False)
 
     def variance_scaled_problem() -> Alternative | None:
         try:
@@ -129,7 +131,7 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
         except CfaError:  # e.g. a freed factor variance, which variance scaling would fix
             return None
         alt_model = StructuredModel(alt_table)
-        return Alternative(alt_table, alt_model, WeightedLeastSquares(alt_model, R[pairs], weights, moments.n_obs),
+        return Alternative(alt_table, alt_model, OrdinalLeastSquares(alt_model, statistics, thresholds=False),
                            starting_values(alt_table, R, None))
 
     found = search(ls, table, starting_values(table, R, None), options.max_iterations, variance_scaled_problem)
@@ -213,7 +215,7 @@ class OrdinalEstimation:
 
     table: ParameterTable
     model: StructuredModel
-    objective: GroupedOrdinalLeastSquares
+    objective: OrdinalLeastSquares
     theta: np.ndarray
     value: float
     converged: bool
@@ -226,7 +228,7 @@ class OrdinalEstimation:
 
     @property
     def df(self) -> int:
-        return sum(len(t) for t in self.objective.targets) - self.table.n_free
+        return self.objective.n_statistics - self.table.n_free
 
 
 def _in_model_order(groups: list, observed: tuple[str, ...]) -> list:
@@ -250,7 +252,10 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: str = "di
         raise OptionError(f"the model has {table.n_free} free parameters but the groups' thresholds and correlations "
                           f"give only {n_stats} statistics, so it cannot be identified")
     model = StructuredModel(table)
-    objective = GroupedOrdinalLeastSquares(model, moments, method)
+    pairs = np.tril_indices(len(observed), -1)
+    statistics = [group_statistics(np.concatenate([m.stacked_thresholds, m.correlations[pairs]]), m.joint_gamma, m.n_obs,
+                                   method == "diagonally-weighted") for m in moments]
+    objective = OrdinalLeastSquares(model, statistics, thresholds=True)
     weights = objective.weights
     R = sum(w * m.correlations for w, m in zip(weights, moments))
     tau = sum(w * m.stacked_thresholds for w, m in zip(weights, moments))
@@ -261,7 +266,7 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: str = "di
         except CfaError:  # e.g. a freed factor variance, which variance scaling would fix
             return None
         alt_model = StructuredModel(alt_table)
-        return Alternative(alt_table, alt_model, GroupedOrdinalLeastSquares(alt_model, moments, method),
+        return Alternative(alt_table, alt_model, OrdinalLeastSquares(alt_model, statistics, thresholds=True),
                            starting_values(alt_table, R, np.zeros(len(observed)), thresholds=tau))
 
     if start is None or len(start) != table.n_free:

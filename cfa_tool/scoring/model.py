@@ -125,13 +125,13 @@ def scoring_model(mats: ModelMatrices, items: tuple[str, ...], factors: tuple[st
 
 
 def score_inputs(estimation, groups: list) -> tuple[ScoringModel, ...]:
-    """Each group's :class:`ScoringModel` from :func:`cfa_tool.fitting.estimate`'s output.
+    """Each group's :class:`ScoringModel` from :func:`cfa_tool.pipeline.continuous.estimate`'s output.
 
-    ``estimation``: an :class:`~cfa_tool.fitting.Estimation` (its table, model and theta are used);
+    ``estimation``: an :class:`~cfa_tool.pipeline.continuous.Estimation` (its table, model and theta are used);
     ``groups``: the ``(label, SampleMoments)`` list it was estimated from (for the item means
     when the model has no mean structure, and the group labels).
     """
-    from cfa_tool.fitting import ordered_moments
+    from cfa_tool.pipeline.continuous import ordered_moments
 
     table, model, theta = estimation.table, estimation.model, estimation.theta
     out = []
@@ -243,7 +243,7 @@ def standardized_latent_responses(mats: ModelMatrices) -> ModelMatrices:
 
 def ordinal_score_inputs(estimation, groups: list) -> tuple[OrdinalScoringModel, ...]:
     """Each group's :class:`OrdinalScoringModel` from
-    :func:`cfa_tool.ordinal_fitting.estimate_ordinal_groups`'s output (ordinal items in several
+    :func:`cfa_tool.pipeline.ordinal.estimate_ordinal_groups`'s output (ordinal items in several
     groups: thresholds, intercepts and residual variances of the latent responses are parameters).
 
     ``groups``: the ``(label, OrdinalMoments)`` list it was estimated from (for the categories).

@@ -23,8 +23,8 @@ from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, OptionError
-from cfa_tool.fitting import moments_from_rows, replicate_fit
-from cfa_tool.results import FitResult, clean
+from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fit
+from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.parallel import run_tasks
 
 
@@ -81,7 +81,7 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     derivatives taken by central differences of the closed-form standardization."""
     from cfa_tool.assessment.standardized import standardize_entries
     from cfa_tool.numerics.linalg import scaled_inverse
-    from cfa_tool.fitting import FitOptions, estimate
+    from cfa_tool.pipeline.continuous import FitOptions, estimate
     from cfa_tool.inference.robust import normal_weight, vech_indices
 
     est = estimate(spec, [(None, moments_from_rows(rows, names))], FitOptions(diagnostics=False), start=theta)

@@ -7,16 +7,16 @@ from pathlib import Path
 
 import pandas as pd
 
-from cfa_tool.api import (load_spec, make_options, moments_for, ordinal_estimator_option, ordinal_items_of,
+from cfa_tool.pipeline.inputs import (load_spec, make_options, moments_for, ordinal_estimator_option, ordinal_items_of,
                           read_inputs_with_notes, refuse_row_options, summary_source)
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import OptionError
 from cfa_tool.estimation.ml import NormalLikelihood
-from cfa_tool.fitting import fit_moments, ordered_moments
+from cfa_tool.pipeline.continuous import fit_moments, ordered_moments
 from cfa_tool.inference.robust import robust_parts
 from cfa_tool.language.spec import Spec
-from cfa_tool.results import FitResult, clean
+from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.nesting import DifferenceTest, difference_test, is_nested, scaled_difference_tests
 
 

@@ -22,11 +22,11 @@ import numpy as np
 
 from cfa_tool import options as check
 from cfa_tool.errors import OptionError
-from cfa_tool.fitting import moments_from_rows, replicate_fit
+from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fit
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
-from cfa_tool.results import FitResult, clean
+from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.parallel import run_tasks
 from cfa_tool.workflows.simulation import simulate_rows
 

@@ -16,14 +16,14 @@ from pathlib import Path
 
 import pandas as pd
 
-from cfa_tool.api import (check_ordinal_options, make_options, moments_for, ordinal_estimator_option, ordinal_groups,
+from cfa_tool.pipeline.inputs import (check_ordinal_options, make_options, moments_for, ordinal_estimator_option, ordinal_groups,
                           ordinal_items_of, read_inputs)
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import OptionError
-from cfa_tool.fitting import assess, estimate
+from cfa_tool.pipeline.continuous import assess, estimate
 from cfa_tool.language.spec import ParameterRef, Spec
-from cfa_tool.results import FitResult, clean
+from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.nesting import DifferenceTest, difference_test
 
 LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
@@ -255,17 +255,17 @@ class OrdinalLadder:
         self.method = method
 
     def estimate(self, spec, groups, options, start):
-        from cfa_tool.ordinal_fitting import estimate_ordinal_groups
+        from cfa_tool.pipeline.ordinal import estimate_ordinal_groups
 
         return estimate_ordinal_groups(spec, groups, options, self.method, start)
 
     def assess(self, spec, groups, est, options, group_column):
-        from cfa_tool.ordinal_fitting import assess_ordinal_groups
+        from cfa_tool.pipeline.ordinal import assess_ordinal_groups
 
         return assess_ordinal_groups(spec, groups, est, options, group_column, self.method, modification=False)
 
     def difference(self, est, result, previous, level, previous_level) -> DifferenceTest:
-        from cfa_tool.ordinal_fitting import ordinal_difference
+        from cfa_tool.pipeline.ordinal import ordinal_difference
         from cfa_tool.workflows.ordinal_compare import difference_record
 
         general_est, general = previous
@@ -273,7 +273,7 @@ class OrdinalLadder:
 
     def constraint_tests(self, est, kinds):
         from cfa_tool.assessment.modification import constrained_entries
-        from cfa_tool.ordinal_fitting import ordinal_score_tests
+        from cfa_tool.pipeline.ordinal import ordinal_score_tests
 
         table = est.table
         return ordinal_score_tests(est, [constrained_entries(table, kinds, g) + _pinned_entries(table, kinds, g)

@@ -15,7 +15,7 @@ from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
 from cfa_tool.errors import OptionError
-from cfa_tool.fitting import moments_from_rows, replicate_fit
+from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fit
 from cfa_tool.language.spec import Spec
 from cfa_tool.workflows.parallel import run_tasks
 from cfa_tool.workflows.simulation import population_from_spec, simulate_rows
@@ -61,7 +61,7 @@ def _replicate(task) -> tuple[bool, np.ndarray, np.ndarray]:
 
 def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int = 1, alpha: float = 0.05,
                       workers: int | None = None, cluster: str | None = None, progress=None) -> MonteCarloPower:
-    from cfa_tool.api import continuous_only, load_spec
+    from cfa_tool.pipeline.inputs import continuous_only, load_spec
 
     spec = continuous_only(load_spec(spec), "power-simulation")
     replications = check.replications(replications, minimum=2)

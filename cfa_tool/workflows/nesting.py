@@ -12,9 +12,9 @@ from dataclasses import dataclass
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.data.moments import SampleMoments
-from cfa_tool.fitting import Estimation, FitOptions, estimate
+from cfa_tool.pipeline.continuous import Estimation, FitOptions, estimate
 from cfa_tool.language.spec import Spec
-from cfa_tool.results import FitResult, clean
+from cfa_tool.pipeline.results import FitResult, clean
 
 NESTING_TOLERANCE = 1e-7  # minimum discrepancy below which the implied moments count as reproduced
 

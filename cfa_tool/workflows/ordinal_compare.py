@@ -1,7 +1,7 @@
 """Rival models for ordinal items, fitted to the same rows and tested when nested.
 
 Every model is fitted by least squares on thresholds and polychoric correlations
-(one group is the one-group case of :mod:`cfa_tool.estimation.ordinal`, with the
+(one group is the one-group case of :mod:`cfa_tool.estimation.least_squares` with thresholds, with the
 same fit as the single-group estimator).  Nesting is checked numerically as for
 continuous items (Bentler & Satorra 2010): the general model is fitted to the
 restricted model's implied thresholds and correlations and must reproduce them.
@@ -17,8 +17,7 @@ import numpy as np
 from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.errors import OptionError
 from cfa_tool.estimation.optimizer import minimise
-from cfa_tool.estimation.ordinal import GroupedOrdinalLeastSquares
-from cfa_tool.ordinal_fitting import assess_ordinal_groups, estimate_ordinal_groups, ordinal_difference
+from cfa_tool.pipeline.ordinal import assess_ordinal_groups, estimate_ordinal_groups, ordinal_difference
 from cfa_tool.workflows.nesting import NESTING_TOLERANCE, DifferenceTest
 
 ORDINAL_DIFFERENCE = "scale-shifted adjusted difference (Asparouhov & Muthen 2006)"
@@ -26,7 +25,7 @@ ORDINAL_DIFFERENCE = "scale-shifted adjusted difference (Asparouhov & Muthen 200
 
 def fit_ordinal_models(specs, complete, source, group, reference_group, fit_options, ordinal_items, method):
     """(estimations, results, per-model groups) of every model on the same complete rows."""
-    from cfa_tool.api import check_ordinal_options, ordinal_groups
+    from cfa_tool.pipeline.inputs import check_ordinal_options, ordinal_groups
 
     check_ordinal_options(fit_options)
     items = set(specs[0].observed_names)
@@ -73,8 +72,7 @@ def ordinal_difference_test(restricted, general, restricted_result, general_resu
     n_thr = {x: int(np.sum(obj_r.item_of == j)) for j, x in enumerate(names_r)}
     order = statistic_order(names_r, names_g, n_thr)  # restricted's vector -> general's order
     # the general model fitted to the restricted model's implied statistics (M10 of Satorra & Bentler 2010)
-    target = GroupedOrdinalLeastSquares(general.model, [m for _, m in general_groups], method)
-    target.targets = [obj_r.statistics(restricted.theta, g)[order] for g in range(len(obj_r.weights))]
+    target = general.objective.with_targets([obj_r.statistics(restricted.theta, g)[order] for g in range(len(obj_r.weights))])
     opt = minimise(target.evaluate, target.value, general.theta, general.table.lower, general.table.upper)
     if not opt.converged:
         return None, "the nesting check did not converge"

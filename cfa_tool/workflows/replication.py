@@ -18,16 +18,16 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.api import continuous_only, load_frame, load_spec, make_options
+from cfa_tool.pipeline.inputs import continuous_only, load_frame, load_spec, make_options
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.numerics.linalg import log_det_pd
-from cfa_tool.fitting import fit_moments
+from cfa_tool.pipeline.continuous import fit_moments
 from cfa_tool.language.spec import Spec
-from cfa_tool.results import FitResult, clean
+from cfa_tool.pipeline.results import FitResult, clean
 
 
 @dataclass(frozen=True, eq=False)

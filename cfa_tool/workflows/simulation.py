@@ -147,7 +147,7 @@ def standardized_entries(table: ParameterTable, model: StructuredModel, theta: n
 
 def population_from_spec(spec: Spec) -> Population:
     from cfa_tool.data.moments import SampleMoments
-    from cfa_tool.fitting import FitOptions, estimate
+    from cfa_tool.pipeline.continuous import FitOptions, estimate
 
     table = build_parameter_table(spec)
     model = StructuredModel(table)
@@ -207,7 +207,7 @@ def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing
     continuous, or ordinal with ``categories`` categories (whole numbers 1..k), with a share ``missing``
     of answers removed completely at random.  Items an 'ordinal' statement declares are cut into
     categories (and need ``categories``); without such a statement ``categories`` cuts every item."""
-    from cfa_tool.api import load_spec
+    from cfa_tool.pipeline.inputs import load_spec
 
     spec = load_spec(spec)
     n = check.whole_number("the number of rows to simulate", n, 1)
