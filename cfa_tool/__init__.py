@@ -6,15 +6,34 @@ model against data without fitting).  Heavy modules load on first use.
 
 from __future__ import annotations
 
+from cfa_tool import views
 from cfa_tool.version import __version__
+
 __all__ = ["fit", "check", "bootstrap", "cutoffs", "parse_model", "__version__"]
 
 
-def __getattr__(name: str):
-    if name in ("fit", "check", "bootstrap", "cutoffs"):
-        from cfa_tool.pipeline import inputs as api
+def _presenter():
+    from cfa_tool.reporting.presenter import ReportPresenter
 
-        return getattr(api, name)
+    return ReportPresenter()
+
+
+views.install(_presenter)
+
+
+def __getattr__(name: str):
+    if name in ("fit", "check"):
+        from cfa_tool.pipeline import inputs
+
+        return getattr(inputs, name)
+    if name == "bootstrap":
+        from cfa_tool.workflows.bootstrap import bootstrap
+
+        return bootstrap
+    if name == "cutoffs":
+        from cfa_tool.workflows.cutoffs import cutoffs
+
+        return cutoffs
     if name == "parse_model":
         from cfa_tool.language.parser import parse_model
 

@@ -335,20 +335,18 @@ def _simulation_command(args: argparse.Namespace) -> int:
     from cfa_tool.reporting import workflow_text as W
 
     if args.command == "power":
-        from cfa_tool.workflows.power import plan
+        from cfa_tool.workflows.power import model_degrees_of_freedom, plan
 
         df = args.df
         if args.model and args.df is not None:
             raise OptionError("give a model file or --df, not both (the model file gives the degrees of freedom)")
+        variables = None
         if args.model:
             from cfa_tool.language.parser import read_model_file
-            from cfa_tool.model.parameters import build_parameter_table
 
-            table = build_parameter_table(read_model_file(args.model))
-            df = table.p * (table.p + 1) // 2 - table.n_free
+            df, variables = model_degrees_of_freedom(read_model_file(args.model))
         if df is None:
             raise OptionError("give a model file or --df")
-        variables = table.p if args.model else None
         return _emit(args, plan(df, args.test, args.n, args.alpha, args.target, variables=variables), W.render_power)
     from cfa_tool.language.parser import read_model_file
 
@@ -379,14 +377,14 @@ def _simulation_command(args: argparse.Namespace) -> int:
                                        args.workers, args.cluster, advance)
             render = W.render_montecarlo
         elif args.command == "bootstrap":
-            from cfa_tool.pipeline.inputs import bootstrap
+            from cfa_tool.workflows.bootstrap import bootstrap
 
             result = _Pair(bootstrap(args.model, args.data, args.replications, args.seed, workers=args.workers,
                                      cluster=args.cluster, progress=advance, sheet=args.sheet,
                                      missing_codes=args.missing_codes, keep=args.keep))
             render = W.render_bootstrap
         else:
-            from cfa_tool.pipeline.inputs import cutoffs
+            from cfa_tool.workflows.cutoffs import cutoffs
 
             result = _Pair(cutoffs(args.model, args.data, args.replications, args.seed, args.workers, args.cluster,
                                    advance, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep))

@@ -1,5 +1,4 @@
-"""How a result object shows itself: its report as text, as a notebook's HTML, and its tables as
-data frames.
+"""How a result object shows itself: its report as text and as a notebook's HTML.
 
 Result objects are made below the reporting layer (by the pipeline and the workflows), so they
 cannot import it.  Instead the reporting layer's presenter is installed here by the package's top
@@ -13,14 +12,11 @@ from typing import Callable, Protocol
 
 
 class Presenter(Protocol):
-    def text(self, result: object, width: int | None = None) -> str:
-        """The terminal report as plain text (``width`` columns; the terminal's width when None)."""
+    def text(self, result: object, width: int = 120) -> str:
+        """The terminal report as plain text, ``width`` columns wide."""
 
     def notebook(self, result: object) -> str:
         """An HTML fragment for a notebook."""
-
-    def frames(self, result: object) -> dict:
-        """Every table of the report as a pandas DataFrame, numbers as numbers, keyed by the table's name."""
 
 
 _loader: Callable[[], Presenter] | None = None
@@ -39,20 +35,14 @@ def presenter() -> Presenter:
 
 
 class Presentable:
-    """``summary()``, ``_repr_html_()``, ``frames()`` and ``str()`` for result objects, through the
-    installed presenter."""
+    """``summary()``, ``_repr_html_()`` and ``str()`` for result objects, through the installed presenter."""
 
-    def summary(self, width: int | None = 120) -> str:
+    def summary(self, width: int = 120) -> str:
         """The report as text, as the command line prints it."""
         return presenter().text(self, width)
 
     def _repr_html_(self) -> str:
         return presenter().notebook(self)
-
-    def frames(self) -> dict:
-        """The report's tables as data frames (one column per number: estimates, p-values and
-        interval bounds each in their own column)."""
-        return presenter().frames(self)
 
     def __str__(self) -> str:
         return self.summary()

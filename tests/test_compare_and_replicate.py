@@ -129,7 +129,7 @@ def test_compare_from_a_summary_statistics_file(tmp_path, hs_data):
 
 
 def test_raw_data_commands_refuse_summary_statistics(tmp_path):
-    from cfa_tool.pipeline.inputs import bootstrap
+    from cfa_tool.workflows.bootstrap import bootstrap
 
     path = tmp_path / "s.stats"
     path.write_text("variables: a b c\nobservations: 100\nmatrix: correlation\nvalues:\n1\n.5 1\n.4 .45 1\n")

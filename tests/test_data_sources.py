@@ -250,7 +250,7 @@ def test_summary_statistics_from_python_are_checked_like_files(hs_items, options
 
 
 def test_python_options_of_the_wrong_type(hs_items):
-    from cfa_tool.pipeline.inputs import bootstrap
+    from cfa_tool.workflows.bootstrap import bootstrap
 
     with pytest.raises(OptionError, match="the number of replications must be a whole number, not '10'"):
         bootstrap(THREE_FACTORS, hs_items, replications="10")

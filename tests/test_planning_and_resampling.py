@@ -122,7 +122,7 @@ def test_monte_carlo_power_agrees_with_the_analytic_value():
 
 
 def test_bootstrap_is_reproducible_and_covers_the_estimate(hs_data):
-    from cfa_tool.pipeline.inputs import bootstrap
+    from cfa_tool.workflows.bootstrap import bootstrap
 
     result, first = bootstrap(THREE_FACTORS, hs_data, replications=40, seed=11, workers=1)
     _, again = bootstrap(THREE_FACTORS, hs_data, replications=40, seed=11, workers=2)
@@ -168,7 +168,7 @@ def test_bca_acceleration_from_influence_values_matches_the_jackknife(hs_data):
 def test_bootstrap_cost_does_not_grow_with_rows_times_fits(monkeypatch, hs_data):
     """BCa needs no refit per row: a 100,000-row bootstrap fits the model once per resample only."""
     import cfa_tool.workflows.bootstrap as B
-    from cfa_tool.pipeline.inputs import bootstrap
+    from cfa_tool.workflows.bootstrap import bootstrap
 
     calls = []
     original = B.replicate_fit
@@ -179,7 +179,7 @@ def test_bootstrap_cost_does_not_grow_with_rows_times_fits(monkeypatch, hs_data)
 
 
 def test_bollen_stine_p_is_roughly_uniform_under_a_true_model():
-    from cfa_tool.pipeline.inputs import bootstrap
+    from cfa_tool.workflows.bootstrap import bootstrap
 
     spec = parse_model(POPULATION)
     ps = []
@@ -193,7 +193,7 @@ def test_bollen_stine_p_is_roughly_uniform_under_a_true_model():
 
 
 def test_model_specific_cutoffs(hs_data):
-    from cfa_tool.pipeline.inputs import cutoffs
+    from cfa_tool.workflows.cutoffs import cutoffs
 
     result, cut = cutoffs(THREE_FACTORS, hs_data, replications=60, seed=3, workers=1)
     assert "cross-loading" in cut.misspecification

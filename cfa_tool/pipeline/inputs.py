@@ -452,32 +452,3 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - empty, empty, coverage,
                        labels)
 
-
-def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 1000, seed: int = 1,
-              bollen_stine: bool = True, bca: bool = True, workers: int | None = None, cluster: str | None = None,
-              progress=None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-              keep: tuple[str, ...] | list[str] = ()):
-    """Fit the model, then bootstrap it: returns (FitResult, BootstrapResult)."""
-    from cfa_tool.workflows.bootstrap import bootstrap_fit, bootstrap_options
-
-    replications, seed = bootstrap_options(replications, seed, workers)
-    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
-    continuous_only(spec, "bootstrap")
-    moments = sample_moments(frame, spec.observed_names, source)
-    result = converged(fit_moments(spec, moments, FitOptions()))
-    order = [moments.names.index(n) for n in result.observed]
-    boot = bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, cluster, progress)
-    return result, boot
-
-
-def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 200, seed: int = 1,
-            workers: int | None = None, cluster: str | None = None, progress=None, sheet: str | None = None,
-            missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = ()):
-    """Fit the model, then simulate model-specific fit-index cutoffs: returns (FitResult, CutoffResult)."""
-    from cfa_tool.workflows.cutoffs import cutoff_options, fit_cutoffs
-
-    replications, seed = cutoff_options(replications, seed, workers)
-    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
-    continuous_only(spec, "cutoffs")
-    result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
-    return result, fit_cutoffs(spec, result, replications, seed, workers, cluster, progress)

@@ -11,6 +11,7 @@ from cfa_tool.assessment.modification import ModificationIndex
 from cfa_tool.assessment.normality import Normality
 from cfa_tool.inference.robust import RobustFit
 from cfa_tool.numerics.plain import clean
+from cfa_tool.views import Presentable
 
 DEFAULT_MI_THRESHOLD = 3.84  # chi-square(1) critical value at alpha = .05
 
@@ -151,7 +152,7 @@ class GroupResult:
 
 
 @dataclass(frozen=True, eq=False)
-class FitResult:
+class FitResult(Presentable):
     model_name: str
     model_source: str
     model_text: str
@@ -258,16 +259,3 @@ class FitResult:
         out["modification_indices"] = [clean(m.to_dict()) for m in self.reported_modification_indices()]
         out["warnings"] = list(self.warnings)
         return out
-
-    def summary(self) -> str:
-        from cfa_tool.reporting.terminal import render_text
-
-        return render_text(self)
-
-    def _repr_html_(self) -> str:  # notebooks show the report's tables
-        from cfa_tool.reporting.html_report import result_tables_html
-
-        return result_tables_html(self)
-
-    def __str__(self) -> str:
-        return self.summary()

@@ -15,15 +15,20 @@ silently.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from pathlib import Path
 
 import numpy as np
+import pandas as pd
 from scipy import linalg
 
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
+from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import EstimationError, OptionError
-from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fit
+from cfa_tool.language.spec import Spec
+from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
+from cfa_tool.pipeline.inputs import continuous_only, converged, read_inputs
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.parallel import run_tasks
 
@@ -207,3 +212,18 @@ def _bca(draws: np.ndarray, point: float, a: float, level: float = 0.95) -> tupl
         adjusted = dist.norm_cdf(z0 + (z0 + z) / (1 - a * (z0 + z)))
         out.append(float(np.percentile(draws, 100 * adjusted)))
     return out[0], out[1]
+
+
+def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 1000, seed: int = 1,
+              bollen_stine: bool = True, bca: bool = True, workers: int | None = None, cluster: str | None = None,
+              progress=None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
+              keep: tuple[str, ...] | list[str] = ()):
+    """Fit the model, then bootstrap it: returns (FitResult, BootstrapResult)."""
+    replications, seed = bootstrap_options(replications, seed, workers)
+    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
+    continuous_only(spec, "bootstrap")
+    moments = sample_moments(frame, spec.observed_names, source)
+    result = converged(fit_moments(spec, moments, FitOptions()))
+    order = [moments.names.index(n) for n in result.observed]
+    boot = bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, cluster, progress)
+    return result, boot

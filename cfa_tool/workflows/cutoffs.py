@@ -17,12 +17,16 @@ for that misspecification only.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from pathlib import Path
 
 import numpy as np
+import pandas as pd
 
 from cfa_tool import options as check
+from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import OptionError
-from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fit
+from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
+from cfa_tool.pipeline.inputs import continuous_only, converged, read_inputs
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
@@ -201,3 +205,14 @@ def _cutoffs(correct: np.ndarray, mis: np.ndarray) -> dict[tuple[str, float], fl
                 ok = np.quantile(correct[:, k], level) <= cut
             out[(index, level)] = cut if ok else None
     return out
+
+
+def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 200, seed: int = 1,
+            workers: int | None = None, cluster: str | None = None, progress=None, sheet: str | None = None,
+            missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = ()):
+    """Fit the model, then simulate model-specific fit-index cutoffs: returns (FitResult, CutoffResult)."""
+    replications, seed = cutoff_options(replications, seed, workers)
+    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
+    continuous_only(spec, "cutoffs")
+    result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
+    return result, fit_cutoffs(spec, result, replications, seed, workers, cluster, progress)

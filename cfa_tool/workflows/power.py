@@ -73,6 +73,15 @@ def required_sample_size(df: int, rmsea_null: float, rmsea_alt: float, power: fl
     return hi
 
 
+def model_degrees_of_freedom(spec) -> tuple[int, int]:
+    """(degrees of freedom, indicators) of a model's covariance structure in one group:
+    p(p + 1)/2 - q (Joreskog 1969)."""
+    from cfa_tool.model.parameters import build_parameter_table
+
+    table = build_parameter_table(spec)
+    return table.p * (table.p + 1) // 2 - table.n_free, table.p
+
+
 def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 0.05, target_power: float = 0.80,
          rmsea_null: float | None = None, rmsea_alt: float | None = None, variables: int | None = None) -> PowerResult:
     """Power of the RMSEA test at ``n_obs`` and the smallest N reaching ``target_power``; with the model's
