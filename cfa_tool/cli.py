@@ -14,6 +14,7 @@ import warnings
 from pathlib import Path
 
 from cfa_tool.errors import CfaError, EstimationError, ModelError, OptionError, printable
+from cfa_tool.method import FitTest, Information, MissingData, Weighting
 
 PROG = "cfa-tool"
 
@@ -153,7 +154,7 @@ def _add_group_options(p: argparse.ArgumentParser, required: bool) -> None:
 
 
 def _add_test_option(p: argparse.ArgumentParser) -> None:
-    p.add_argument("--test", choices=("normal", "satorra-bentler", "yuan-bentler"), default="normal",
+    p.add_argument("--test", choices=FitTest.words(), default="normal",
                    help="'satorra-bentler': scaled chi-square, robust standard errors and robust fit indices for non-normal "
                         "complete data; 'yuan-bentler': the same with full-information ML (--missing full-information)")
 
@@ -184,7 +185,7 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--markdown", metavar="PATH", help="write the report as Markdown")
     p.add_argument("--diagram", metavar="PATH", help="write the path diagram as SVG (or PNG when PATH ends in .png and a converter is installed)")
     p.add_argument("--tables", metavar="FOLDER", help="write every table as CSV and as LaTeX (booktabs) into FOLDER")
-    p.add_argument("--information", choices=("expected", "observed"), default=None,
+    p.add_argument("--information", choices=Information.words(), default=None,
                    help="information matrix for standard errors (default: expected; full-information ML uses observed)")
     p.add_argument("--mi-threshold", type=float, default=3.84, metavar="X",
                    help="show modification indices of at least X (default 3.84)")
@@ -192,7 +193,7 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
     _add_test_option(p)
     _add_ordinal_options(p)
-    p.add_argument("--missing", choices=("listwise", "full-information"), default=None,
+    p.add_argument("--missing", choices=MissingData.words(), default=None,
                    help="rows with missing answers: used by full-information ML (the default when a model variable has "
                         "gaps) or left out (listwise)")
 
@@ -200,7 +201,7 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
 def _add_ordinal_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--ordinal", metavar="ITEMS",
                    help="'all' or comma-separated items to treat as ordinal (thresholds and polychoric correlations)")
-    p.add_argument("--ordinal-estimator", choices=("diagonally-weighted", "unweighted"), default=None,
+    p.add_argument("--ordinal-estimator", choices=Weighting.words(), default=None,
                    help="least squares for ordinal items (default diagonally-weighted)")
 
 

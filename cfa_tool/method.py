@@ -15,12 +15,12 @@ from enum import Enum
 from cfa_tool.errors import OptionError, printable
 
 
-class Choice(Enum):
+class Choice(str, Enum):
     """A typed choice: ``value`` the word a user types, ``label`` the name tables print, ``phrase`` the
     words of a methods paragraph; ``offered`` says whether users may choose it (the tool picks the others)."""
 
     def __new__(cls, word: str, label: str, phrase: str, offered: bool = True):
-        member = object.__new__(cls)
+        member = str.__new__(cls, word)
         member._value_ = word
         member.label = label
         member.phrase = phrase
@@ -41,7 +41,7 @@ class Choice(Enum):
             for member in cls:
                 if member.offered and member.value == value:
                     return member
-        shown = printable(value) if isinstance(value, str) else type(value).__name__
+        shown = printable(str(value))
         raise OptionError(f"{what} must be one of {', '.join(cls.words())}, not '{shown}'")
 
     def __str__(self) -> str:
@@ -98,6 +98,18 @@ class Items(Choice):
     ORDINAL = ("ordinal", "ordinal items", "ordinal items", False)
     # ordinal items with continuous ones beside them (polyserial correlations)
     MIXED = ("mixed", "ordinal and continuous items", "ordinal items with continuous items beside them", False)
+
+
+class DifferenceMethod(str, Enum):
+    """How two nested fits are compared; the value is the name reports and the JSON give."""
+
+    LIKELIHOOD_RATIO = "likelihood ratio"
+    SATORRA_BENTLER_2001 = "Satorra-Bentler 2001 scaled difference"
+    SATORRA_BENTLER_2010 = "Satorra-Bentler 2010 strictly positive scaled difference"
+    SCALE_SHIFTED = "scale-shifted adjusted difference (Asparouhov & Muthen 2006)"
+
+    def __str__(self) -> str:
+        return self.value
 
 
 @dataclass(frozen=True)

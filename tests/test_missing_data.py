@@ -12,6 +12,7 @@ import cfa_tool
 from cfa_tool.errors import OptionError
 from cfa_tool.data.em import em_saturated
 from cfa_tool.data.patterns import pattern_data
+from cfa_tool.method import FitTest, MissingData
 from tests.conftest import THREE_FACTORS
 from tests.test_cli import DATA, MODEL, run
 
@@ -161,7 +162,7 @@ def test_yuan_bentler_with_complete_rows_gives_the_sandwich_standard_errors(hs_d
             assert r.se == pytest.approx(se[(r.kind, r.variables)], rel=1e-6), r.variables
     # both scaling factors estimate the same quantity; on these data they differ by about 1%
     assert yb.robust.scaling_factor == pytest.approx(sb.robust.scaling_factor, rel=0.03)
-    assert yb.robust.method == "Yuan-Bentler"
+    assert yb.robust.test is FitTest.YUAN_BENTLER
 
 
 def test_yuan_bentler_scaling_is_near_one_for_normal_data_with_gaps():
@@ -201,7 +202,7 @@ def test_rows_with_gaps_are_kept_by_default(hs_holes):
     third of the rows and warns first."""
     default = cfa_tool.fit(THREE_FACTORS, hs_holes)
     explicit = cfa_tool.fit(THREE_FACTORS, hs_holes, missing="full-information")
-    assert default.n_obs == 301 and "full information" in default.estimator
+    assert default.n_obs == 301 and default.method.missing is MissingData.FULL_INFORMATION
     np.testing.assert_allclose([r.estimate for r in default.estimates], [r.estimate for r in explicit.estimates],
                                rtol=1e-10)
     assert default.fit.chi_square == pytest.approx(explicit.fit.chi_square, rel=1e-10)

@@ -13,6 +13,7 @@ from scipy import optimize, stats
 import cfa_tool
 from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.errors import DataError, OptionError
+from cfa_tool.method import Items, Weighting
 
 CUTS = [np.array([-1.0, 0.0, 1.0]), np.array([-0.5, 0.5]), np.array([0.2])]
 R3 = np.array([[1.0, 0.5, 0.3], [0.5, 1.0, 0.4], [0.3, 0.4, 1.0]])
@@ -79,7 +80,7 @@ def test_least_squares_recovers_a_known_model(method):
         assert abs(est[key].estimate - value) < 4 * est[key].se + 0.01, key
     assert est[("y1",)].estimate == pytest.approx(1 - est[("f", "y1")].estimate ** 2, abs=1e-9)  # unit latent-response variance
     assert result.robust.p_value_scaled > 0.001
-    assert "polychoric" in result.estimator
+    assert result.method.items is Items.ORDINAL and result.method.weighting is Weighting(method)
 
 
 def test_adjusted_test_rejects_a_wrong_model():
@@ -137,5 +138,5 @@ def test_mixed_continuous_and_ordinal_model():
     z = np.random.default_rng(8).multivariate_normal(np.zeros(2), [[1, 0.4], [0.4, 1]], size=3000)
     data["y1"] = 0.8 * z[:, 0] * 10 + np.random.default_rng(9).normal(scale=6, size=3000)  # continuous, SD units of 10
     result = cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\nordinal y2..y8\nscale latent by variance\n", data)
-    assert result.converged and "polyserial" in result.estimator
+    assert result.converged and result.method.items is Items.MIXED
     assert any("correlation metric" in w for w in result.warnings)

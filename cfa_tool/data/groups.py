@@ -9,6 +9,7 @@ from cfa_tool.data.labels import label_text, merged_labels
 from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.method import MissingData
 
 
 MAX_GROUPS = 100  # a multi-group fit estimates every parameter in each group
@@ -49,7 +50,7 @@ def label_notes(frame: pd.DataFrame, column: str) -> list[str]:
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
-                  reference: str | None = None, missing: str = "listwise") -> tuple[list[tuple[str, SampleMoments]], int]:
+                  reference: str | None = None, missing: MissingData | str = MissingData.LISTWISE) -> tuple[list[tuple[str, SampleMoments]], int]:
     """Per-group moments (reference group first) and the number of rows without a group value."""
     labels = group_labels(frame, column, source, reference)
     keys = frame[column].map(lambda v: None if pd.isna(v) else _label(v))

@@ -12,6 +12,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.errors import DataError, printable
+from cfa_tool.method import MissingData
 from cfa_tool.numbers import number as strict_number
 from cfa_tool.numerics.linalg import cholesky_log_det
 
@@ -93,7 +94,6 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
     return out
 
 
-MISSING_CHOICES = ("listwise", "full-information")
 
 
 #: Numbers beyond these magnitudes cannot be analysed in double precision (their squares and
@@ -177,7 +177,7 @@ def _row_numbers(frame: pd.DataFrame) -> np.ndarray:
 
 
 def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, group: str | None = None,
-                   missing: str = "listwise") -> SampleMoments:
+                   missing: MissingData | str = MissingData.LISTWISE) -> SampleMoments:
     """Moments of the model variables: of the complete rows (listwise deletion), or, with
     ``missing='full-information'``, the EM estimates from every row with at least one answer
     (the rows themselves are kept for the casewise likelihood)."""
@@ -186,7 +186,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
         source = f"{source} (group {group})"
     values = _numeric_rows(frame, names, source)
     p = values.shape[1]
-    if missing == "full-information":
+    if missing == MissingData.FULL_INFORMATION:  # the member or its word
         return _incomplete_moments(values, names, source, file_source, group, len(frame))
     complete = ~np.isnan(values).any(axis=1)
     every_row = bool(complete.all())

@@ -25,14 +25,15 @@ from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.numerics.linalg import scaled_inverse
 from cfa_tool.estimation.ml import NormalLikelihood
+from cfa_tool.method import FitTest
 from cfa_tool.model.implied import StructuredModel
 
 
 @dataclass(frozen=True)
 class RobustFit:
-    """Scaled test and robust fit indices (Satorra-Bentler)."""
+    """A corrected test statistic with the robust fit indices computed from it."""
 
-    method: str
+    test: FitTest  # which correction
     scaling_factor: float
     chi_square_scaled: float
     df: int
@@ -46,8 +47,9 @@ class RobustFit:
 
     def to_dict(self) -> dict:
         d = asdict(self)
+        del d["test"]
         d["rmsea_robust_ci90"] = list(self.rmsea_robust_ci90)
-        return d
+        return {"method": self.test.label, **d}
 
 
 def vech_indices(p: int) -> tuple[np.ndarray, np.ndarray]:
@@ -132,7 +134,7 @@ def baseline_trace(likelihood: NormalLikelihood) -> float:
 
 
 def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, base_df: int, base_trace: float,
-               n_obs: int, n_groups: int, method: str = "Satorra-Bentler") -> RobustFit:
+               n_obs: int, n_groups: int, test: FitTest = FitTest.SATORRA_BENTLER) -> RobustFit:
     c = trace_ug / df if df > 0 else float("nan")
     cb = base_trace / base_df
     scaled = chi_square / c if df > 0 else float("nan")
@@ -146,7 +148,7 @@ def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, bas
     low, high = rmsea_interval(scaled, df, n_obs)
     scale = np.sqrt(c * n_groups) if df > 0 else float("nan")
     return RobustFit(
-        method=method,
+        test=test,
         scaling_factor=float(c),
         chi_square_scaled=float(scaled),
         df=df,

@@ -24,7 +24,6 @@ from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments
 from cfa_tool.errors import CfaError, OptionError
-from cfa_tool.data.moments import MISSING_CHOICES
 from cfa_tool.estimation.fiml import MissingDataLikelihood, fiml_baseline, fiml_log_likelihood
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
 from cfa_tool.data.patterns import pattern_data
@@ -33,6 +32,7 @@ from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
 from cfa_tool.inference.standard_errors import observed_information, parameter_covariance, wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import Spec
+from cfa_tool.method import Estimator, FitMethod, FitTest, Information, MissingData
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
@@ -40,9 +40,6 @@ from cfa_tool.model.starts import starting_values
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult
 
-ESTIMATOR = "maximum likelihood"
-INFORMATION_CHOICES = ("expected", "observed")
-TEST_CHOICES = ("normal", "satorra-bentler", "yuan-bentler")
 
 
 LISTWISE_WARNING_SHARE = 0.05  # more rows lost than this to listwise deletion: a prominent warning (common practice)
@@ -52,26 +49,27 @@ LISTWISE_WARNING_SHARE = 0.05  # more rows lost than this to listwise deletion: 
 class FitOptions:
     # source of the standard errors: None means the estimator's own (expected information for complete
     # data, observed information with full-information ML); robust tests use the sandwich
-    information: str | None = None
+    information: Information | None = None
     mi_threshold: float = DEFAULT_MI_THRESHOLD
     mi_top: int | None = None
     max_iterations: int = 500
-    test: str = "normal"
+    test: FitTest = FitTest.NORMAL
     diagnostics: bool = True  # Mardia's tests, reliability, normalized residuals, case diagnostics
     modification_indices: bool = True  # (workflows and loops that refit many times turn these off)
-    # rows with missing answers: "full-information" or "listwise"; None lets cfa_tool.fit decide from the
+    # rows with missing answers: full information or listwise; None lets cfa_tool.fit decide from the
     # data (full information when a model variable has a gap), and means listwise elsewhere
-    missing: str | None = None
+    missing: MissingData | None = None
 
     def __post_init__(self) -> None:
-        if self.test not in TEST_CHOICES:
-            raise OptionError(f"test must be one of {', '.join(TEST_CHOICES)}, not '{self.test}'")
-        if self.information is not None and self.information not in INFORMATION_CHOICES:
-            raise OptionError(f"information must be one of {', '.join(INFORMATION_CHOICES)}, not '{self.information}'")
-        if self.information is not None and self.test != "normal":
+        object.__setattr__(self, "test", FitTest.parse(self.test, "test"))
+        if self.information is not None:
+            object.__setattr__(self, "information", Information.parse(self.information, "information"))
+        if self.information is not None and self.test is not FitTest.NORMAL:
             raise OptionError(f"with the {self.test} test the standard errors are robust (sandwich) ones, so an "
                               f"information matrix ('{self.information}') cannot be chosen; remove that option")
-        if self.information == "expected" and self.missing == "full-information":
+        if self.missing is not None:
+            object.__setattr__(self, "missing", MissingData.parse(self.missing, "missing"))
+        if self.information is Information.EXPECTED and self.missing is MissingData.FULL_INFORMATION:
             raise OptionError("with full-information ML the standard errors use the observed information, the one that "
                               "stays valid when answers are missing at random (Kenward & Molenberghs 1998); the expected "
                               "information assumes they are missing completely at random, so it is not offered")
@@ -82,11 +80,9 @@ class FitOptions:
             object.__setattr__(self, "mi_top", check.whole_number("the number of modification indices to show", self.mi_top, 0))
         object.__setattr__(self, "max_iterations",
                            check.whole_number("the iteration limit", self.max_iterations, 1, check.MAX_ITERATIONS))
-        if self.missing is not None and self.missing not in MISSING_CHOICES:
-            raise OptionError(f"missing must be one of {', '.join(MISSING_CHOICES)}, not '{self.missing}'")
-        if self.missing == "full-information" and self.test == "satorra-bentler":
+        if self.missing is MissingData.FULL_INFORMATION and self.test is FitTest.SATORRA_BENTLER:
             raise OptionError("the Satorra-Bentler test needs complete rows; with full-information ML use --test yuan-bentler")
-        if self.test == "yuan-bentler" and self.missing == "listwise":
+        if self.test is FitTest.YUAN_BENTLER and self.missing is MissingData.LISTWISE:
             raise OptionError("the Yuan-Bentler test goes with full-information ML (--missing full-information); "
                               "for complete rows use --test satorra-bentler")
 
@@ -117,7 +113,7 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
              start: np.ndarray | None = None) -> Estimation:
     """Build the model and minimise the ML discrepancy (no standard errors, no indices)."""
     multi = len(groups) > 1 or groups[0][0] is not None
-    fiml = options.missing == "full-information"
+    fiml = options.missing is MissingData.FULL_INFORMATION
     labels = tuple(label for label, _ in groups) if multi else None
     table, model = model_structure(spec, labels, fiml)
     moments = [ordered_moments(m, table.observed) for _, m in groups]
@@ -195,7 +191,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     for label, m in groups:
         if m.rows_dropped:
             where = f" in group '{label}'" if label is not None else ""
-            if options.missing == "full-information":
+            if options.missing is MissingData.FULL_INFORMATION:
                 warnings.append(f"{m.rows_dropped} of {m.rows_read} rows{where} answered none of the model variables and "
                                 f"were left out")
             elif m.rows_dropped > LISTWISE_WARNING_SHARE * m.rows_read:
@@ -210,8 +206,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     robust = None
     inference = None
     mis: list = []
-    robust_wanted = options.test == "satorra-bentler"
-    yuan_bentler = options.test == "yuan-bentler"
+    robust_wanted = options.test is FitTest.SATORRA_BENTLER
+    yuan_bentler = options.test is FitTest.YUAN_BENTLER
     if robust_wanted and any(gm.rows is None for gm in likelihood.groups):
         raise OptionError("the Satorra-Bentler test needs the raw data rows, not only a covariance matrix")
     group_srmr = None
@@ -239,9 +235,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             saturated = [(gm.mean, gm.covariance) for gm in likelihood.groups]
             cov_theta, c, c_base = robust_missing(likelihood, theta, saturated, fit.df, fit.baseline_df)
             robust = robust_fit(fit.chi_square, fit.df, c * fit.df, fit.baseline_chi_square, fit.baseline_df,
-                                c_base * fit.baseline_df, n_total, table.n_groups, method="Yuan-Bentler")
+                                c_base * fit.baseline_df, n_total, table.n_groups, test=FitTest.YUAN_BENTLER)
         else:
-            if options.information == "observed" or not likelihood.complete_data:
+            if options.information is Information.OBSERVED or not likelihood.complete_data:
                 # with incomplete data the observed information is the one valid under MAR (Kenward & Molenberghs 1998)
                 closed_form = likelihood.observed_hessian(theta) if hasattr(likelihood, "observed_hessian") else None
                 gradient = getattr(likelihood, "gradient", None) or (lambda t: likelihood.evaluate(t).gradient)
@@ -293,15 +289,22 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         item_sds = tuple(float(v) for v in np.sqrt(np.diag(pooled_cov)))
     else:
         item_means, item_sds = group_results[0].data.means, group_results[0].data.sds
+    if options.test.robust:
+        information = Information.SANDWICH
+    elif options.information is not None:
+        information = options.information
+    else:
+        information = Information.EXPECTED if likelihood.complete_data else Information.OBSERVED
+    method = FitMethod(Estimator.MAXIMUM_LIKELIHOOD, options.test, information,
+                       MissingData.LISTWISE if likelihood.complete_data else MissingData.FULL_INFORMATION)
     overall = DataSummary(first.source, sum(m.rows_read for _, m in groups), sum(m.rows_dropped for _, m in groups),
                           n_total, table.observed, item_means, item_sds)
     return FitResult(
         model_name=spec.title or spec.source,
         model_source=spec.source,
         model_text=spec.text,
-        estimator=ESTIMATOR + (" with Satorra-Bentler scaled test and robust standard errors" if robust_wanted else "")
-        + (" with Yuan-Bentler scaled test and robust (Huber-White) standard errors" if yuan_bentler else "")
-        + ("" if likelihood.complete_data else " (full information, incomplete rows included)"),
+        estimator=method.sentence(),
+        method=method,
         converged=est.converged,
         iterations=est.iterations,
         message=est.message,

@@ -18,9 +18,9 @@ from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file, summa
 from cfa_tool import options as opt
 from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
-from cfa_tool.pipeline.ordinal import ORDINAL_METHODS
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec
+from cfa_tool.method import FitTest, MissingData, Weighting
 from cfa_tool.pipeline.results import CheckResult, FitResult
 
 
@@ -141,7 +141,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=()) -
 
 
 def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,
-                reference_group: str | None = None, missing: str = "listwise") -> tuple[list[tuple[str | None, SampleMoments]], list[str]]:
+                reference_group: str | None = None, missing: MissingData | str = MissingData.LISTWISE) -> tuple[list[tuple[str | None, SampleMoments]], list[str]]:
     """Per-group (or single) sample moments of the model variables, with notes on rows left out."""
     notes: list[str] = []
     if group is None:
@@ -219,7 +219,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         else:
             moments, notes = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
-        if fit_options.missing == "full-information" or fit_options.test != "normal":
+        if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is not FitTest.NORMAL:
             raise OptionError("summary statistics allow only the normal-theory test with complete data")
         result = converged(fit_moments(spec, moments, replace(fit_options, diagnostics=False)))
         return _described(replace(result, warnings=tuple(notes) + result.warnings), spec, None)
@@ -259,21 +259,21 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     a gap, listwise deletion only when asked for (or when nothing is missing, where the two agree)."""
     if fit_options.missing is not None:
         return fit_options, []
-    if fit_options.test == "yuan-bentler":  # the robust test of full-information ML
-        return replace(fit_options, missing="full-information"), []
+    if fit_options.test is FitTest.YUAN_BENTLER:  # the robust test of full-information ML
+        return replace(fit_options, missing=MissingData.FULL_INFORMATION), []
     columns = frame[list(names)]
     if group is not None and group in frame.columns:
         columns = columns[frame[group].notna()]
     gaps = int(columns.isna().any(axis=1).sum())
     if not gaps:
-        return replace(fit_options, missing="listwise"), []
-    if fit_options.test == "satorra-bentler":
+        return replace(fit_options, missing=MissingData.LISTWISE), []
+    if fit_options.test is FitTest.SATORRA_BENTLER:
         raise OptionError(f"{gaps} rows have missing answers on model variables, so the fit uses full-information ML, "
                           f"whose robust test is Yuan-Bentler (--test yuan-bentler); for the Satorra-Bentler test of the "
                           f"complete rows only, choose --missing listwise")
     note = (f"{gaps} of {len(columns)} rows miss some answers on model variables; every answer is used by "
             f"full-information ML (the default when answers are missing; --missing listwise would leave those rows out)")
-    return replace(fit_options, missing="full-information"), [note]
+    return replace(fit_options, missing=MissingData.FULL_INFORMATION), [note]
 
 
 def _described(result: FitResult, spec: Spec, groups: tuple[str, ...] | None, ordinal_items=()) -> FitResult:
@@ -322,7 +322,7 @@ def continuous_only(spec: Spec, command: str) -> Spec:
 
 
 def check_ordinal_options(fit_options) -> None:
-    if fit_options.missing == "full-information" or fit_options.test != "normal":
+    if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is not FitTest.NORMAL:
         raise OptionError("ordinal items are fitted with listwise deletion and their own adjusted test; full-information "
                           "ML and the Satorra-Bentler and Yuan-Bentler tests are for continuous items")
     if fit_options.information is not None:
@@ -349,9 +349,8 @@ def ordinal_estimator_option(method: str | None, ordinal_items) -> str:
     """The least-squares estimator for ordinal items (default diagonally weighted); naming one for a model
     without ordinal items is an error, since it could not apply."""
     if method is None:
-        return ORDINAL_METHODS[0]
-    if method not in ORDINAL_METHODS:
-        raise OptionError(f"the ordinal estimator must be one of {', '.join(ORDINAL_METHODS)}, not '{printable(method)}'")
+        return Weighting.DIAGONAL
+    method = Weighting.parse(method, "the ordinal estimator")
     if not ordinal_items:
         raise OptionError("an estimator for ordinal items is chosen, but the model has no ordinal items (declare them "
                           "with an 'ordinal' statement or --ordinal), so it cannot apply")
@@ -442,7 +441,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
     groups, _ = moments_for(spec, frame, source, group, reference_group, missing=options.missing)
     labels = tuple(label for label, _ in groups) if group is not None else None
-    check_counting_rule(spec, build_parameter_table(spec, labels, mean_structure=options.missing == "full-information"))
+    check_counting_rule(spec, build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION))
     answered = frame[list(spec.observed_names)].notna()
     if group is not None:
         answered = answered[frame[group].notna()]

@@ -33,6 +33,7 @@ from cfa_tool.inference.robust import RobustFit
 from cfa_tool.inference.standard_errors import wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import ParameterRef, Spec, ValueSetting
+from cfa_tool.method import Estimator, FitMethod, FitTest, Information, Items, MissingData, Weighting
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
@@ -40,7 +41,6 @@ from cfa_tool.model.starts import starting_values
 from cfa_tool.pipeline.continuous import estimate_rows
 from cfa_tool.pipeline.results import DataSummary, FitResult, GroupResult
 
-ORDINAL_METHODS = ("diagonally-weighted", "unweighted")
 ORDINAL_NOTE = ("With ordinal items the fit indices come from the scale-shifted adjusted statistic; they were developed for "
                 "continuous data and tend to look better with ordinal data at the same misfit, so read them with care.")
 GROUPS_NOTE = ("Ordinal items in several groups: the latent responses have intercept 0 and residual variance 1 in the first "
@@ -49,10 +49,13 @@ GROUPS_NOTE = ("Ordinal items in several groups: the latent responses have inter
 MI_NOTE = "modification indices for ordinal items are robust score tests (Satorra 1989)"
 
 
-def _check_method(method: str) -> str:
-    if method not in ORDINAL_METHODS:
-        raise OptionError(f"the ordinal estimator must be one of {', '.join(ORDINAL_METHODS)}, not '{method}'")
-    return "diagonally weighted" if method == "diagonally-weighted" else "unweighted"
+def _check_method(method: Weighting | str) -> Weighting:
+    return Weighting.parse(method, "the ordinal estimator")
+
+
+def _fit_method(weighting: Weighting, items: Items, thresholds: bool) -> FitMethod:
+    return FitMethod(Estimator.LEAST_SQUARES, FitTest.SCALE_SHIFTED, Information.SANDWICH, MissingData.LISTWISE,
+                     weighting, items, thresholds)
 
 
 def _fit_indices(T: float, df: int, T_base: float, base_df: int, n: int, n_free: int, srmr: float, groups: int = 1) -> FitIndices:
@@ -67,7 +70,7 @@ def _fit_indices(T: float, df: int, T_base: float, base_df: int, n: int, n_free:
 def _robust(test: AdjustedTest, base: AdjustedTest, df: int, base_df: int, n: int, groups: int = 1) -> RobustFit:
     root = np.sqrt(groups)
     low, high = rmsea_interval(test.scale_shifted, df, n)
-    return RobustFit("scale-shifted, mean and variance adjusted (Asparouhov & Muthen 2010)", test.scaling,
+    return RobustFit(FitTest.SCALE_SHIFTED, test.scaling,
                      test.scale_shifted, df, test.scale_shifted_p, base.scaling, base.scale_shifted,
                      cfi_value(test.scale_shifted, df, base.scale_shifted, base_df),
                      tli_value(test.scale_shifted, df, base.scale_shifted, base_df),
@@ -95,9 +98,9 @@ def _modification_rows(candidates: list[list], mi: np.ndarray, epc: np.ndarray, 
 # ---------------------------------------------------------------- one group
 
 
-def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted") -> FitResult:
+def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weighting.DIAGONAL) -> FitResult:
     """Least squares on polychoric correlations, with robust standard errors and adjusted tests."""
-    label = _check_method(method)
+    method = _check_method(method)
     user_fixed = {r.key() for s in spec.fixed for r in s.refs}
     for setting in spec.starts + tuple(spec.bounds):
         for ref in setting.refs:
@@ -120,7 +123,7 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
     pairs = np.tril_indices(p, -1)
     take = [index_of[tuple(sorted((order[i], order[j]), reverse=True))] for i, j in zip(*pairs)]
     gamma = moments.gamma[np.ix_(take, take)]
-    statistics = [group_statistics(R[pairs], gamma, moments.n_obs, method == "diagonally-weighted")]
+    statistics = [group_statistics(R[pairs], gamma, moments.n_obs, method is Weighting.DIAGONAL)]
     weights = statistics[0].weights
     model = StructuredModel(table)
     ls = OrdinalLeastSquares(model, statistics, thresholds=False)
@@ -194,11 +197,10 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
     group = GroupResult(None, summary, fit.chi_square if fit else None, fit.srmr if fit else None,
                         dict(zip(table.observed, (float(v) for v in r_squared(final)))), R, sigma, R - sigma, np.zeros(p),
                         None, None, tuple(factors), tuple(htmt))
+    fit_method = _fit_method(method, Items.MIXED if moments.continuous else Items.ORDINAL, thresholds=False)
     return FitResult(
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
-        estimator=f"{label} least squares on polychoric correlations (ordinal items"
-                  + (", with polyserial correlations for continuous items" if moments.continuous else "")
-                  + "), robust standard errors",
+        estimator=fit_method.sentence(), method=fit_method,
         converged=opt.converged, iterations=opt.iterations, message=message, n_obs=n, data=summary,
         observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
         modification_indices=tuple(modification), groups=(group,), warnings=tuple(warnings), mi_threshold=options.mi_threshold,
@@ -238,10 +240,10 @@ def _in_model_order(groups: list, observed: tuple[str, ...]) -> list:
     return moments
 
 
-def estimate_ordinal_groups(spec: Spec, groups: list, options, method: str = "diagonally-weighted",
+def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting | str = Weighting.DIAGONAL,
                             start: np.ndarray | None = None) -> OrdinalEstimation:
     """Build the multi-group ordinal model and minimise its least-squares discrepancy."""
-    _check_method(method)
+    method = _check_method(method)
     labels = tuple(label for label, _ in groups)
     observed = spec.observed_names
     moments = _in_model_order(groups, observed)
@@ -254,7 +256,7 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: str = "di
     model = StructuredModel(table)
     pairs = np.tril_indices(len(observed), -1)
     statistics = [group_statistics(np.concatenate([m.stacked_thresholds, m.correlations[pairs]]), m.joint_gamma, m.n_obs,
-                                   method == "diagonally-weighted") for m in moments]
+                                   method is Weighting.DIAGONAL) for m in moments]
     objective = OrdinalLeastSquares(model, statistics, thresholds=True)
     weights = objective.weights
     R = sum(w * m.correlations for w, m in zip(weights, moments))
@@ -315,9 +317,9 @@ def ordinal_difference(restricted: OrdinalEstimation, general: OrdinalEstimation
 
 
 def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, options, group_column: str,
-                          method: str = "diagonally-weighted", modification: bool = True) -> FitResult:
+                          method: Weighting | str = Weighting.DIAGONAL, modification: bool = True) -> FitResult:
     """Robust standard errors, adjusted tests, indices and score tests of a multi-group ordinal fit."""
-    label = _check_method(method)
+    method = _check_method(method)
     table, model, obj, theta = est.table, est.model, est.objective, est.theta
     G = len(groups)
     n = obj.n_total
@@ -401,8 +403,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                         tuple(float(v) for v in moments[0].sds))
     return FitResult(
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
-        estimator=f"{label} least squares on thresholds and polychoric correlations (ordinal items, {G} groups), "
-                  f"robust standard errors",
+        estimator=_fit_method(method, Items.ORDINAL, thresholds=True).sentence(G),
+        method=_fit_method(method, Items.ORDINAL, thresholds=True),
         converged=est.converged, iterations=est.iterations, message=est.message, n_obs=n, data=total,
         observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
         modification_indices=tuple(modification_rows), groups=tuple(group_results), group_column=group_column,
@@ -410,7 +412,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     )
 
 
-def fit_ordinal_groups(spec: Spec, groups: list, options, method: str = "diagonally-weighted",
+def fit_ordinal_groups(spec: Spec, groups: list, options, method: Weighting | str = Weighting.DIAGONAL,
                        group_column: str = "group") -> FitResult:
     est = estimate_ordinal_groups(spec, groups, options, method)
     return assess_ordinal_groups(spec, groups, est, options, group_column, method)

@@ -10,6 +10,7 @@ from cfa_tool.assessment.fit_indices import FitIndices
 from cfa_tool.assessment.modification import ModificationIndex
 from cfa_tool.assessment.normality import Normality
 from cfa_tool.inference.robust import RobustFit
+from cfa_tool.method import FitMethod
 from cfa_tool.numerics.plain import clean
 from cfa_tool.views import Presentable
 
@@ -156,7 +157,8 @@ class FitResult(Presentable):
     model_name: str
     model_source: str
     model_text: str
-    estimator: str
+    estimator: str  # how the model was fitted, in one line (the report's status line, the JSON's "estimator")
+    method: FitMethod  # the same, typed: what code reads
     converged: bool
     iterations: int
     message: str
@@ -250,7 +252,7 @@ class FitResult(Presentable):
             normality = self.groups[0].normality
             out["normality"] = clean(normality.to_dict()) if normality is not None else None
             out["reliability"] = self.groups[0].reliability_dict()
-            out["reliability"]["scale"] = "latent responses (ordinal)" if "polychoric" in self.estimator else "observed items"
+            out["reliability"]["scale"] = "latent responses (ordinal)" if self.method.ordinal else "observed items"
             out["diagnostics"] = self.groups[0].diagnostics_dict()
         out["missing_data"] = clean(self.missing_data) if self.missing_data is not None else None
         if self.labels is not None:

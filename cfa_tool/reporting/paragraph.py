@@ -11,6 +11,7 @@ that from the result's model description, never from a generic template.
 
 from __future__ import annotations
 
+from cfa_tool.method import FitTest, Items
 from cfa_tool.reporting.numbers import unit
 
 CHI = "\u03c7\u00b2"
@@ -37,12 +38,12 @@ def _pair(pair) -> str:
 
 
 def _estimator_phrase(result) -> str:
-    text = result.estimator
-    if "polychoric" in text:
-        kind = "diagonally weighted" if text.startswith("diagonally") else "unweighted"
-        extra = " and polyserial" if "polyserial" in text else ""
-        return f"{kind} least squares on polychoric{extra} correlations of the ordinal items, with robust standard errors"
-    if "full information" in text:
+    method = result.method
+    if method.ordinal:
+        extra = " and polyserial" if method.items is Items.MIXED else ""
+        return (f"{method.weighting.label} least squares on polychoric{extra} correlations of the ordinal items, with "
+                f"robust standard errors")
+    if method.full_information:
         base = "full-information maximum likelihood"
         return base + (" with the Yuan-Bentler scaled test and robust standard errors" if result.robust is not None else "")
     if result.robust is not None:
@@ -50,10 +51,10 @@ def _estimator_phrase(result) -> str:
     return "maximum likelihood"
 
 
-def _test_phrase(method: str) -> str:
-    if method.startswith("scale-shifted"):
+def _test_phrase(test: FitTest) -> str:
+    if test is FitTest.SCALE_SHIFTED:
         return "mean-and-variance adjusted (scale-shifted) chi-square test"
-    return f"{method} scaled chi-square test"
+    return f"{test.label} scaled chi-square test"
 
 
 def _structure(result, d) -> str:
@@ -150,7 +151,7 @@ def _capital(text: str) -> str:
 def _sample_phrase(result) -> str:
     data = result.data
     text = f"N = {result.n_obs}"
-    full_information = "full information" in result.estimator
+    full_information = result.method.full_information
     if full_information and result.missing_data is not None:
         coverage = result.missing_data.get("coverage", {})
         low = min(coverage.values()) if coverage else 1.0
@@ -173,7 +174,7 @@ def _fit_sentence(result) -> str:
     if result.robust is not None:
         r = result.robust
         rl, rh = r.rmsea_robust_ci90
-        return (f"The {_test_phrase(r.method)} gave {CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
+        return (f"The {_test_phrase(r.test)} gave {CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
                 f"(scaling factor {r.scaling_factor:.3f}); robust CFI = {unit(r.cfi_robust)}, robust TLI = "
                 f"{unit(r.tli_robust)}, robust RMSEA = {unit(r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], "
                 f"SRMR = {unit(f.srmr)}.")

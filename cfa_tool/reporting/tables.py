@@ -70,7 +70,7 @@ def fit_table(result) -> ReportTable:
     if r is not None:
         rlow, rhigh = r.rmsea_robust_ci90
         rows += [
-            [f"Scaled chi-square ({r.method})", f"{r.chi_square_scaled:.3f} on {r.df} df, p {p_phrase(r.p_value_scaled)}",
+            [f"Scaled chi-square ({r.test.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, p {p_phrase(r.p_value_scaled)}",
              "the test to read for these data"],
             ["  scaling factor", num(r.scaling_factor), "1 under normality"],
             ["Robust CFI / TLI", f"{unit(r.cfi_robust)} / {unit(r.tli_robust)}", ">= .95"],
@@ -172,7 +172,7 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
         fl = "" if r.fornell_larcker_holds is None else ("yes" if r.fornell_larcker_holds else "no")
         body.append([r.factor, str(len(r.items)), unit(r.omega), unit(r.omega_total), unit(r.composite_reliability),
                      unit(r.average_variance_extracted), fl, unit(r.alpha)])
-    ordinal = "polychoric" in result.estimator
+    ordinal = result.method.ordinal
     note = (("Ordinal versions, on the latent responses behind the items (alpha from the polychoric correlations). "
              if ordinal else "") + keying_sentence(rows) +
             "Omega: share of the keyed item sum's variance due to the factor (for a higher-order factor: omega "

@@ -16,6 +16,7 @@ from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import fit_moments, ordered_moments
 from cfa_tool.inference.robust import robust_parts
 from cfa_tool.language.spec import Spec
+from cfa_tool.method import FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.nesting import DifferenceTest, difference_test, is_nested, scaled_difference_tests
 
@@ -69,10 +70,10 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     if len(models) < 2:
         raise OptionError("comparing needs at least two models")
     fit_options = replace(make_options(options), diagnostics=False)
-    if fit_options.test == "yuan-bentler" or fit_options.missing == "full-information":
+    if fit_options.test is FitTest.YUAN_BENTLER or fit_options.missing is MissingData.FULL_INFORMATION:
         raise OptionError("compare fits every model to the same complete rows (listwise), so full-information ML and "
                           "its Yuan-Bentler test do not apply here; use the normal-theory or the Satorra-Bentler test")
-    fit_options = replace(fit_options, missing="listwise")
+    fit_options = replace(fit_options, missing=MissingData.LISTWISE)
     specs = [load_spec(m) for m in models]
     ordinal_items = set().union(*(ordinal_items_of(spec, ordinal) for spec in specs))
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
@@ -123,7 +124,7 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
     """Rival models fitted to one summary-statistics file (normal-theory tests only)."""
     if group is not None:
         raise OptionError("groups need raw data; a summary-statistics file describes one group")
-    if fit_options.test != "normal":
+    if fit_options.test is not FitTest.NORMAL:
         raise OptionError("summary statistics allow only the normal-theory test")
     moments, _ = read_summary_file(path)
     results = []

@@ -14,6 +14,7 @@ from cfa_tool.numerics import distributions as dist
 from cfa_tool.data.moments import SampleMoments
 from cfa_tool.pipeline.continuous import Estimation, FitOptions, estimate
 from cfa_tool.language.spec import Spec
+from cfa_tool.method import DifferenceMethod
 from cfa_tool.pipeline.results import FitResult, clean
 
 NESTING_TOLERANCE = 1e-7  # minimum discrepancy below which the implied moments count as reproduced
@@ -26,7 +27,7 @@ class DifferenceTest:
     chi_square_difference: float
     df_difference: int
     p_value: float
-    method: str
+    method: DifferenceMethod
     delta_cfi: float
     delta_rmsea: float
 
@@ -40,7 +41,7 @@ def difference_test(restricted: FitResult, general: FitResult, restricted_name: 
     diff = r.chi_square - g.chi_square
     ddf = r.df - g.df
     p = float(dist.chi2_sf(max(diff, 0.0), ddf)) if ddf > 0 else float("nan")
-    return DifferenceTest(restricted_name, general_name, diff, ddf, p, "likelihood ratio", r.cfi - g.cfi, r.rmsea - g.rmsea)
+    return DifferenceTest(restricted_name, general_name, diff, ddf, p, DifferenceMethod.LIKELIHOOD_RATIO, r.cfi - g.cfi, r.rmsea - g.rmsea)
 
 
 def scaled_difference_tests(restricted: FitResult, general: FitResult, restricted_name: str, general_name: str,
@@ -57,8 +58,8 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
     out = []
     delta_cfi = rr.cfi_robust - gr.cfi_robust
     delta_rmsea = rr.rmsea_robust - gr.rmsea_robust
-    for method, c1 in (("Satorra-Bentler 2001 scaled difference", gr.scaling_factor),
-                       ("Satorra-Bentler 2010 strictly positive scaled difference", general_scaling_at_restricted)):
+    for method, c1 in ((DifferenceMethod.SATORRA_BENTLER_2001, gr.scaling_factor),
+                       (DifferenceMethod.SATORRA_BENTLER_2010, general_scaling_at_restricted)):
         if c1 is None:
             continue
         cd = (r.df * rr.scaling_factor - g.df * c1) / ddf

@@ -17,10 +17,10 @@ import numpy as np
 from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.errors import OptionError
 from cfa_tool.estimation.optimizer import minimise
+from cfa_tool.method import DifferenceMethod
 from cfa_tool.pipeline.ordinal import assess_ordinal_groups, estimate_ordinal_groups, ordinal_difference
 from cfa_tool.workflows.nesting import NESTING_TOLERANCE, DifferenceTest
 
-ORDINAL_DIFFERENCE = "scale-shifted adjusted difference (Asparouhov & Muthen 2006)"
 
 
 def fit_ordinal_models(specs, complete, source, group, reference_group, fit_options, ordinal_items, method):
@@ -92,4 +92,4 @@ def difference_record(test, restricted_name: str, general_name: str, restricted_
     """The scale-shifted adjusted difference, with the changes in robust CFI and RMSEA, as reported."""
     r, g = restricted_result.robust, general_result.robust
     return DifferenceTest(restricted_name, general_name, test.scale_shifted, test.df, test.scale_shifted_p,
-                          ORDINAL_DIFFERENCE, r.cfi_robust - g.cfi_robust, r.rmsea_robust - g.rmsea_robust)
+                          DifferenceMethod.SCALE_SHIFTED, r.cfi_robust - g.cfi_robust, r.rmsea_robust - g.rmsea_robust)
