@@ -4,9 +4,9 @@ An objective is a discrepancy F(theta) >= 0 between the data's statistics and th
 zero when the model reproduces them, summed over groups with weights N_g / N so that N F is the test
 statistic.  Implemented by complete-data maximum likelihood (:mod:`cfa_tool.estimation.ml`),
 full-information maximum likelihood (:mod:`cfa_tool.estimation.fiml`) and least squares for ordinal
-items, one group or several (:mod:`cfa_tool.estimation.least_squares`).  The optimiser, the search
-strategy, standard errors and the contract test (``tests/estimation/test_objective_contract.py``)
-use nothing else.
+items, one group or several (:mod:`cfa_tool.estimation.least_squares`).  The optimiser and the
+search strategy use nothing else; ``tests/estimation/test_objective_contract.py`` checks every
+implementation against this contract.
 """
 
 from __future__ import annotations
