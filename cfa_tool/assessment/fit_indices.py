@@ -1,4 +1,4 @@
-"""Global fit indices for a maximum-likelihood fit.
+"""Global fit indices, computed here and nowhere else for every estimator.
 
 * chi-square = N F_min on df = p(p+1)/2 - q (Joreskog 1969);
 * baseline (independence) model: chi-square = N (sum log s_ii - log|S|) on p(p-1)/2 df;
@@ -13,7 +13,11 @@
 * with G groups the RMSEA is multiplied by sqrt(G) (Steiger 1998), and the
   baseline model has free means and variances in every group;
 * log-likelihood of the normal model, AIC (Akaike 1974), BIC (Schwarz 1978) and
-  sample-size-adjusted BIC (Sclove 1987).
+  sample-size-adjusted BIC (Sclove 1987), for maximum-likelihood fits.
+
+Robust indices estimate the noncentrality as T - c df (Brosseau-Liard, Savalei & Li 2012;
+Brosseau-Liard & Savalei 2014) and use the same formulas (:func:`cfi_from`, :func:`tli_from`,
+:func:`rmsea_from`).
 """
 
 from __future__ import annotations
@@ -35,20 +39,22 @@ class FitIndices:
     tli: float
     rmsea: float
     rmsea_ci90: tuple[float, float]
-    rmsea_p_close: float
     srmr: float
-    log_likelihood: float
-    aic: float
-    bic: float
-    sabic: float
     baseline_chi_square: float
     baseline_df: int
     n_free_parameters: int
+    rmsea_p_close: float | None = None  # None: not computed (least-squares fits)
+    log_likelihood: float | None = None  # None: least-squares fits have no likelihood
+    aic: float | None = None
+    bic: float | None = None
+    sabic: float | None = None
 
     def to_dict(self) -> dict:
         d = asdict(self)
         d["rmsea_ci90"] = list(self.rmsea_ci90)
-        return d
+        order = ("chi_square", "df", "p_value", "cfi", "tli", "rmsea", "rmsea_ci90", "rmsea_p_close", "srmr",
+                 "log_likelihood", "aic", "bic", "sabic", "baseline_chi_square", "baseline_df", "n_free_parameters")
+        return {k: d[k] for k in order}
 
 
 def chi_square_p(chi_square: float, df: int) -> float:
@@ -78,7 +84,8 @@ def noncentrality_bound(chi_square: float, df: int, probability: float, central_
     return float(brentq(f, 0.0, hi, xtol=1e-10))
 
 
-def rmsea_interval(chi_square: float, df: int, n_obs: int, level: float = 0.90) -> tuple[float, float]:
+def rmsea_interval(chi_square: float, df: int, n_obs: int, groups: int = 1, level: float = 0.90) -> tuple[float, float]:
+    """The RMSEA's interval from the noncentral chi-square (Browne & Cudeck 1993), times sqrt(G) with G groups."""
     if df <= 0:
         return (float("nan"), float("nan"))
     tail = (1.0 - level) / 2.0
@@ -86,29 +93,51 @@ def rmsea_interval(chi_square: float, df: int, n_obs: int, level: float = 0.90) 
     lam_low = noncentrality_bound(chi_square, df, 1.0 - tail, central)
     lam_high = noncentrality_bound(chi_square, df, tail, central)
     scale = df * n_obs
-    return (float(np.sqrt(lam_low / scale)), float(np.sqrt(lam_high / scale)))
+    root = np.sqrt(groups)
+    return (float(np.sqrt(lam_low / scale) * root), float(np.sqrt(lam_high / scale) * root))
 
 
-def rmsea_close_fit_p(chi_square: float, df: int, n_obs: int, close: float = 0.05) -> float:
+def rmsea_close_fit_p(chi_square: float, df: int, n_obs: int, groups: int = 1, close: float = 0.05) -> float:
+    """p of the test of close fit, H0: RMSEA <= ``close`` (Browne & Cudeck 1993; with G groups the RMSEA
+    carries sqrt(G), so the bound on the per-group scale is close / sqrt(G))."""
     if df <= 0:
         return float("nan")
-    lam0 = close**2 * df * n_obs
+    lam0 = (close / np.sqrt(groups)) ** 2 * df * n_obs
     return float(dist.ncx2_sf(chi_square, df, lam0))
 
 
-def rmsea_value(chi_square: float, df: int, n_obs: int) -> float:
+def rmsea_from(noncentrality: float, df: int, n_obs: int, groups: int = 1) -> float:
+    """sqrt(lambda / (df N)) times sqrt(G) (Steiger 1990, 1998), lambda the estimated noncentrality."""
     if df <= 0:
         return float("nan")
-    return float(np.sqrt(max(chi_square - df, 0.0) / (df * n_obs)))
+    return float(np.sqrt(max(noncentrality, 0.0) / (df * n_obs)) * np.sqrt(groups))
 
 
-def cfi_value(chi_square: float, df: int, base_chi: float, base_df: int) -> float:
-    num = max(chi_square - df, 0.0)
-    den = max(chi_square - df, base_chi - base_df, 0.0)
+def rmsea_value(chi_square: float, df: int, n_obs: int, groups: int = 1) -> float:
+    return rmsea_from(chi_square - df, df, n_obs, groups)
+
+
+def cfi_from(noncentrality: float, baseline_noncentrality: float) -> float:
+    """1 - lambda / max(lambda, lambda_baseline, 0) (Bentler 1990)."""
+    num = max(noncentrality, 0.0)
+    den = max(noncentrality, baseline_noncentrality, 0.0)
     return 1.0 if den == 0 else float(1.0 - num / den)
 
 
+def cfi_value(chi_square: float, df: int, base_chi: float, base_df: int) -> float:
+    return cfi_from(chi_square - df, base_chi - base_df)
+
+
+def tli_from(noncentrality: float, df: int, baseline_noncentrality: float, base_df: int) -> float:
+    """1 - (lambda / df) / (lambda_baseline / df_baseline) (Tucker & Lewis 1973)."""
+    if df <= 0 or base_df <= 0 or baseline_noncentrality == 0:
+        return float("nan")
+    return float(1.0 - (noncentrality / df) / (baseline_noncentrality / base_df))
+
+
 def tli_value(chi_square: float, df: int, base_chi: float, base_df: int) -> float:
+    """(chi2_b / df_b - chi2 / df) / (chi2_b / df_b - 1), the same index as :func:`tli_from` written with
+    the statistics."""
     if df <= 0 or base_df <= 0:
         return float("nan")
     base_ratio = base_chi / base_df
@@ -118,11 +147,21 @@ def tli_value(chi_square: float, df: int, base_chi: float, base_df: int) -> floa
 
 
 def srmr_value(S: np.ndarray, sigma: np.ndarray) -> float:
+    """One group's SRMR: residuals of the correlation metric over i <= j (Bentler 1995); for a
+    correlation matrix S (ordinal items) the diagonal residuals are zero."""
     inv_sd = 1.0 / np.sqrt(S.diagonal())
     resid = (S - sigma) * (inv_sd[:, None] * inv_sd)
     squares = resid * resid
     p = len(S)  # the mean over i <= j: half the off-diagonal squares plus the diagonal ones
     return float(np.sqrt((squares.sum() + squares.diagonal().sum()) / (p * (p + 1))))
+
+
+def srmr(groups: list[tuple[np.ndarray, np.ndarray, int]]) -> tuple[float, list[float]]:
+    """(overall SRMR, each group's) from each group's (S, Sigma, N_g): with groups, the group-size
+    weighted mean (common practice)."""
+    values = [srmr_value(S, sigma) for S, sigma, _ in groups]
+    n = sum(g[2] for g in groups)
+    return float(sum(g[2] / n * v for g, v in zip(groups, values))), values
 
 
 def normal_log_likelihood(S: np.ndarray, sigma: np.ndarray, n_obs: int, mean_dev: np.ndarray | None = None) -> float:
@@ -146,52 +185,43 @@ def baseline_chi_square(S: np.ndarray, n_obs: int) -> tuple[float, int]:
     return float(n_obs * (np.log(S.diagonal()).sum() - logdet)), p * (p - 1) // 2
 
 
-def fit_indices(groups: list[tuple[np.ndarray, np.ndarray, int, np.ndarray | None]], discrepancy: float, n_free: int,
-                mean_structure: bool = False, log_likelihood: float | None = None,
-                baseline: tuple[float, int] | None = None, group_srmr: list[float] | None = None) -> FitIndices:
-    """Fit indices from each group's (S, Sigma, N_g, m - mu or None) and the minimised discrepancy.
-
-    With incomplete data, S and m are the saturated (EM) estimates, and the caller gives the
-    casewise log-likelihood and the baseline chi-square, which the moments alone do not determine.
-    ``group_srmr``: each group's SRMR, when the caller has computed them.
-    """
-    G = len(groups)
-    p = groups[0][0].shape[0]
-    n_obs = sum(g[2] for g in groups)
-    moments = G * (p * (p + 1) // 2 + (p if mean_structure else 0))
-    df = moments - n_free
-    chi = max(float(n_obs * discrepancy), 0.0)  # rounding can leave a just-identified model a hair below zero
-    base_chi = 0.0
-    base_df = 0
-    loglik = 0.0
-    srmr = 0.0
-    for g, (S, sigma, n, dev) in enumerate(groups):
+def normal_theory_parts(groups: list[tuple[np.ndarray, np.ndarray, int, np.ndarray | None]]) -> tuple[float, int, float]:
+    """(baseline chi-square, its df, log-likelihood) of complete-data ML from each group's
+    (S, Sigma, N_g, m - mu or None without a mean structure)."""
+    base_chi, base_df, loglik = 0.0, 0, 0.0
+    for S, sigma, n, dev in groups:
         c, d = baseline_chi_square(S, n)
         base_chi += c
         base_df += d
-        loglik += normal_log_likelihood(S, sigma, n, dev if mean_structure else None)
-        srmr += n / n_obs * (srmr_value(S, sigma) if group_srmr is None else group_srmr[g])
+        loglik += normal_log_likelihood(S, sigma, n, dev)
+    return base_chi, base_df, loglik
+
+
+def fit_indices(*, chi_square: float, df: int, baseline_chi_square: float, baseline_df: int, n_obs: int,
+                n_free: int, srmr: float, groups: int = 1, log_likelihood: float | None = None,
+                close_fit_test: bool = True) -> FitIndices:
+    """Every global index from the test statistic, the baseline model's and the SRMR; with
+    ``log_likelihood`` (maximum likelihood) also the information criteria.  ``close_fit_test``
+    adds the p of the test of close fit."""
+    chi = max(float(chi_square), 0.0)  # rounding can leave a just-identified model a hair below zero
+    low, high = rmsea_interval(chi, df, n_obs, groups)
+    criteria = {}
     if log_likelihood is not None:
-        loglik = log_likelihood
-    if baseline is not None:
-        base_chi, base_df = baseline
-    rmsea = rmsea_value(chi, df, n_obs) * np.sqrt(G)
-    low, high = rmsea_interval(chi, df, n_obs)
+        criteria = dict(log_likelihood=log_likelihood, aic=-2 * log_likelihood + 2 * n_free,
+                        bic=float(-2 * log_likelihood + n_free * np.log(n_obs)),
+                        sabic=float(-2 * log_likelihood + n_free * np.log((n_obs + 2) / 24.0)))
     return FitIndices(
         chi_square=chi,
         df=df,
         p_value=chi_square_p(chi, df),
-        cfi=cfi_value(chi, df, base_chi, base_df),
-        tli=tli_value(chi, df, base_chi, base_df),
-        rmsea=float(rmsea),
-        rmsea_ci90=(float(low * np.sqrt(G)), float(high * np.sqrt(G))),
-        rmsea_p_close=rmsea_close_fit_p(chi, df, n_obs, close=0.05 / np.sqrt(G)),
+        cfi=cfi_value(chi, df, baseline_chi_square, baseline_df),
+        tli=tli_value(chi, df, baseline_chi_square, baseline_df),
+        rmsea=rmsea_value(chi, df, n_obs, groups),
+        rmsea_ci90=(low, high),
         srmr=float(srmr),
-        log_likelihood=loglik,
-        aic=-2 * loglik + 2 * n_free,
-        bic=float(-2 * loglik + n_free * np.log(n_obs)),
-        sabic=float(-2 * loglik + n_free * np.log((n_obs + 2) / 24.0)),
-        baseline_chi_square=base_chi,
-        baseline_df=base_df,
+        baseline_chi_square=baseline_chi_square,
+        baseline_df=baseline_df,
         n_free_parameters=n_free,
+        rmsea_p_close=rmsea_close_fit_p(chi, df, n_obs, groups) if close_fit_test else None,
+        **criteria,
     )

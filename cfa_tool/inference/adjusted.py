@@ -6,7 +6,8 @@ asymptotic covariance of sqrt(N)(s - sigma):
 * robust (sandwich) covariance of the estimates: (D'WD)^-1 D'W Gamma W D (D'WD)^-1 / N;
 * U = W - W D (D'W D)^-1 D' W (Satorra 1989), and the statistic N F, distributed as z'U z with
   z ~ N(0, Gamma), adjusted for its mean and variance (Satorra & Bentler 1994) or in the
-  scale-shifted form of Asparouhov & Muthen (2010).
+  scale-shifted form of Asparouhov & Muthen (2010);
+* fit indices of the scale-shifted statistic against the baseline's (:func:`adjusted_fit`).
 """
 
 from __future__ import annotations
@@ -15,6 +16,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from cfa_tool.assessment.fit_indices import cfi_value, rmsea_interval, rmsea_value, tli_value
+from cfa_tool.inference.robust import RobustFit
+from cfa_tool.method import FitTest
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import scaled_inverse
 
@@ -70,3 +74,14 @@ def robust_covariance(D: np.ndarray, weights: np.ndarray, gamma: np.ndarray, n_o
     bread = scaled_inverse(WD @ D.T)
     return bread @ (WD @ gamma @ WD.T) @ bread / n_obs
 
+
+def adjusted_fit(test: AdjustedTest, baseline: AdjustedTest, df: int, base_df: int, n_obs: int, groups: int = 1) -> RobustFit:
+    """The scale-shifted statistic with CFI, TLI and RMSEA computed from it and the baseline's
+    (the usual indices applied to the adjusted statistics)."""
+    low, high = rmsea_interval(test.scale_shifted, df, n_obs, groups)
+    return RobustFit(test=FitTest.SCALE_SHIFTED, scaling_factor=test.scaling, chi_square_scaled=test.scale_shifted, df=df,
+                     p_value_scaled=test.scale_shifted_p, baseline_scaling_factor=baseline.scaling,
+                     baseline_chi_square_scaled=baseline.scale_shifted,
+                     cfi_robust=cfi_value(test.scale_shifted, df, baseline.scale_shifted, base_df),
+                     tli_robust=tli_value(test.scale_shifted, df, baseline.scale_shifted, base_df),
+                     rmsea_robust=rmsea_value(test.scale_shifted, df, n_obs, groups), rmsea_robust_ci90=(low, high))

@@ -24,6 +24,7 @@ import numpy as np
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.numerics.linalg import scaled_inverse
+from cfa_tool.assessment.fit_indices import cfi_from, rmsea_from, rmsea_interval, tli_from
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.method import FitTest
 from cfa_tool.model.implied import StructuredModel
@@ -135,18 +136,15 @@ def baseline_trace(likelihood: NormalLikelihood) -> float:
 
 def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, base_df: int, base_trace: float,
                n_obs: int, n_groups: int, test: FitTest = FitTest.SATORRA_BENTLER) -> RobustFit:
+    """Scaled statistic T / c, c = tr(U Gamma) / df, and robust indices from the noncentrality T - c df
+    (Brosseau-Liard, Savalei & Li 2012; Brosseau-Liard & Savalei 2014)."""
     c = trace_ug / df if df > 0 else float("nan")
     cb = base_trace / base_df
     scaled = chi_square / c if df > 0 else float("nan")
     lam = max(chi_square - c * df, 0.0)
     lam_b = max(base_chi - cb * base_df, 0.0)
-    cfi = 1.0 - lam / max(lam, lam_b) if max(lam, lam_b) > 0 else 1.0
-    tli = 1.0 - (lam / df) / (lam_b / base_df) if lam_b > 0 and df > 0 else float("nan")
-    rmsea = float(np.sqrt(lam / (n_obs * df)) * np.sqrt(n_groups)) if df > 0 else float("nan")
-    from cfa_tool.assessment.fit_indices import rmsea_interval
-
-    low, high = rmsea_interval(scaled, df, n_obs)
-    scale = np.sqrt(c * n_groups) if df > 0 else float("nan")
+    low, high = rmsea_interval(scaled, df, n_obs, n_groups)
+    scale = np.sqrt(c) if df > 0 else float("nan")
     return RobustFit(
         test=test,
         scaling_factor=float(c),
@@ -155,8 +153,8 @@ def robust_fit(chi_square: float, df: int, trace_ug: float, base_chi: float, bas
         p_value_scaled=float(dist.chi2_sf(scaled, df)) if df > 0 else float("nan"),
         baseline_scaling_factor=float(cb),
         baseline_chi_square_scaled=float(base_chi / cb),
-        cfi_robust=float(cfi),
-        tli_robust=float(tli),
-        rmsea_robust=rmsea,
+        cfi_robust=cfi_from(lam, lam_b),
+        tli_robust=tli_from(lam, df, lam_b, base_df),
+        rmsea_robust=rmsea_from(lam, df, n_obs, n_groups),
         rmsea_robust_ci90=(float(low * scale), float(high * scale)),
     )

@@ -14,7 +14,7 @@ import numpy as np
 from cfa_tool.assessment.admissibility import admissibility_warnings
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, normalized_residuals
-from cfa_tool.assessment.fit_indices import fit_indices, srmr_value
+from cfa_tool.assessment.fit_indices import fit_indices, normal_theory_parts, srmr, srmr_value
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
 from cfa_tool.assessment.modification import modification_indices
 from cfa_tool.assessment.normality import mardia
@@ -38,7 +38,7 @@ from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult
+from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
 
 
@@ -212,7 +212,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         raise OptionError("the Satorra-Bentler test needs the raw data rows, not only a covariance matrix")
     group_srmr = None
     if est.converged:
-        group_srmr = [srmr_value(gm.covariance, mats[g].implied_covariance()) for g, gm in enumerate(likelihood.groups)]
+        overall_srmr, group_srmr = srmr([(gm.covariance, mats[g].implied_covariance(), gm.n_obs)
+                                         for g, gm in enumerate(likelihood.groups)])
         evaluation = likelihood.evaluate(theta)
         information = evaluation.information
         check_information_rank(information, table.free_labels)
@@ -221,10 +222,12 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             dev = gm.mean - mats[g].implied_mean() if means else None
             per_group.append((gm.covariance, mats[g].implied_covariance(), gm.n_obs, dev))
         if likelihood.complete_data:
-            fit = fit_indices(per_group, est.value, table.n_free, means, group_srmr=group_srmr)
+            base_chi, base_df, loglik = normal_theory_parts(per_group)
         else:
-            fit = fit_indices(per_group, est.value, table.n_free, means, log_likelihood=fiml_log_likelihood(likelihood, theta),
-                              baseline=fiml_baseline(likelihood), group_srmr=group_srmr)
+            (base_chi, base_df), loglik = fiml_baseline(likelihood), fiml_log_likelihood(likelihood, theta)
+        fit = fit_indices(chi_square=n_total * est.value, df=likelihood.n_statistics - table.n_free,
+                          baseline_chi_square=base_chi, baseline_df=base_df, n_obs=n_total, n_free=table.n_free,
+                          srmr=overall_srmr, groups=table.n_groups, log_likelihood=loglik)
         if robust_wanted:
             cov_theta, trace_ug = robust_parts(model, theta, likelihood)
             robust = robust_fit(fit.chi_square, fit.df, trace_ug, fit.baseline_chi_square, fit.baseline_df,
@@ -299,30 +302,10 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                        MissingData.LISTWISE if likelihood.complete_data else MissingData.FULL_INFORMATION)
     overall = DataSummary(first.source, sum(m.rows_read for _, m in groups), sum(m.rows_dropped for _, m in groups),
                           n_total, table.observed, item_means, item_sds)
-    return FitResult(
-        model_name=spec.title or spec.source,
-        model_source=spec.source,
-        model_text=spec.text,
-        estimator=method.sentence(),
-        method=method,
-        converged=est.converged,
-        iterations=est.iterations,
-        message=est.message,
-        n_obs=n_total,
-        data=overall,
-        observed=table.observed,
-        latent=table.latent,
-        fit=fit,
-        robust=robust,
-        estimates=estimates,
-        modification_indices=tuple(mis),
-        groups=tuple(group_results),
-        group_column=group_column,
-        warnings=tuple(warnings),
-        mi_threshold=options.mi_threshold,
-        mi_top=options.mi_top,
-        theta=theta,
-    )
+    return fit_result(spec=spec, method=method, converged=est.converged, iterations=est.iterations, message=est.message,
+                      theta=theta, n_obs=n_total, data=overall, observed=table.observed, latent=table.latent, fit=fit,
+                      robust=robust, estimates=estimates, modification_indices=mis, groups=group_results,
+                      warnings=warnings, options=options, group_column=group_column)
 
 
 def estimate_rows(table: ParameterTable, values: np.ndarray, inference, std_all: np.ndarray, std_lv: np.ndarray,
@@ -418,12 +401,16 @@ def _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_w
             se = wald_inference(values, model.J, cov).se
         except np.linalg.LinAlgError:
             se = np.full_like(values, np.nan)
-    chi = cfi = rmsea = srmr = nan
+    chi = cfi = rmsea = srmr_ = nan
     if fit_indices_wanted:
         gm = est.likelihood.groups[0]
-        f = fit_indices([(gm.covariance, mats.implied_covariance(), gm.n_obs, None)], est.value, table.n_free)
-        chi, cfi, rmsea, srmr = f.chi_square, f.cfi, f.rmsea, f.srmr
-    return ReplicateFit(True, est.theta, values, std, se, chi, cfi, rmsea, srmr)
+        S, sigma = gm.covariance, mats.implied_covariance()
+        base_chi, base_df, loglik = normal_theory_parts([(S, sigma, gm.n_obs, None)])
+        f = fit_indices(chi_square=gm.n_obs * est.value, df=est.likelihood.n_statistics - table.n_free,
+                        baseline_chi_square=base_chi, baseline_df=base_df, n_obs=gm.n_obs, n_free=table.n_free,
+                        srmr=srmr_value(S, sigma), log_likelihood=loglik)
+        chi, cfi, rmsea, srmr_ = f.chi_square, f.cfi, f.rmsea, f.srmr
+    return ReplicateFit(True, est.theta, values, std, se, chi, cfi, rmsea, srmr_)
 
 
 def moments_from_rows(rows: np.ndarray, names: tuple[str, ...], source: str = "<replication>") -> SampleMoments:

@@ -18,7 +18,7 @@ import numpy as np
 
 from cfa_tool.assessment.admissibility import admissibility_warnings
 from cfa_tool.assessment.convergence import nonconvergence_message
-from cfa_tool.assessment.fit_indices import FitIndices, chi_square_p, cfi_value, rmsea_interval, rmsea_value, tli_value
+from cfa_tool.assessment.fit_indices import fit_indices, srmr
 from cfa_tool.assessment.identification import check_information_rank
 from cfa_tool.assessment.modification import (ModificationIndex, candidate_arrays, candidate_entries,
                                                least_squares_score_tests)
@@ -27,9 +27,8 @@ from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.errors import CfaError, OptionError
 from cfa_tool.estimation.least_squares import OrdinalLeastSquares, group_statistics
 from cfa_tool.estimation.strategy import Alternative, search
-from cfa_tool.inference.adjusted import (AdjustedTest, adjusted_statistics, adjusted_test, residual_weights,
+from cfa_tool.inference.adjusted import (AdjustedTest, adjusted_fit, adjusted_statistics, adjusted_test, residual_weights,
                                          robust_covariance)
-from cfa_tool.inference.robust import RobustFit
 from cfa_tool.inference.standard_errors import wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import ParameterRef, Spec, ValueSetting
@@ -39,7 +38,7 @@ from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.pipeline.continuous import estimate_rows
-from cfa_tool.pipeline.results import DataSummary, FitResult, GroupResult
+from cfa_tool.pipeline.results import DataSummary, FitResult, GroupResult, fit_result
 
 ORDINAL_NOTE = ("With ordinal items the fit indices come from the scale-shifted adjusted statistic; they were developed for "
                 "continuous data and tend to look better with ordinal data at the same misfit, so read them with care.")
@@ -58,23 +57,11 @@ def _fit_method(weighting: Weighting, items: Items, thresholds: bool) -> FitMeth
                      weighting, items, thresholds)
 
 
-def _fit_indices(T: float, df: int, T_base: float, base_df: int, n: int, n_free: int, srmr: float, groups: int = 1) -> FitIndices:
-    nan = float("nan")
-    root = np.sqrt(groups)
-    low, high = rmsea_interval(T, df, n)
-    return FitIndices(T, df, chi_square_p(T, df), cfi_value(T, df, T_base, base_df), tli_value(T, df, T_base, base_df),
-                      rmsea_value(T, df, n) * root, (low * root, high * root), nan, srmr, nan, nan, nan, nan, T_base, base_df,
-                      n_free)
-
-
-def _robust(test: AdjustedTest, base: AdjustedTest, df: int, base_df: int, n: int, groups: int = 1) -> RobustFit:
-    root = np.sqrt(groups)
-    low, high = rmsea_interval(test.scale_shifted, df, n)
-    return RobustFit(FitTest.SCALE_SHIFTED, test.scaling,
-                     test.scale_shifted, df, test.scale_shifted_p, base.scaling, base.scale_shifted,
-                     cfi_value(test.scale_shifted, df, base.scale_shifted, base_df),
-                     tli_value(test.scale_shifted, df, base.scale_shifted, base_df),
-                     rmsea_value(test.scale_shifted, df, n) * root, (low * root, high * root))
+def _least_squares_fit(T: float, df: int, T_base: float, base_df: int, n: int, n_free: int, srmr_value: float,
+                       groups: int = 1):
+    """Fit indices of a least-squares statistic: no likelihood, no test of close fit."""
+    return fit_indices(chi_square=T, df=df, baseline_chi_square=T_base, baseline_df=base_df, n_obs=n, n_free=n_free,
+                       srmr=srmr_value, groups=groups, close_fit_test=False)
 
 
 def _modification_rows(candidates: list[list], mi: np.ndarray, epc: np.ndarray, mats_of, label_of) -> list[ModificationIndex]:
@@ -170,9 +157,8 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
         T_base = n * float(R[pairs] @ (weights * R[pairs]))
         test = adjusted_test(T, df, D, weights, gamma)
         base = adjusted_test(T_base, n_corr, None, weights, gamma)
-        srmr = float(np.sqrt(np.mean((R - sigma)[np.tril_indices(p)] ** 2)))
-        fit = _fit_indices(T, df, T_base, n_corr, n, table.n_free, srmr)
-        robust = _robust(test, base, df, n_corr, n)
+        fit = _least_squares_fit(T, df, T_base, n_corr, n, table.n_free, srmr([(R, sigma, n)])[0])
+        robust = adjusted_fit(test, base, df, n_corr, n)
         cands = candidate_entries(table, exogenous_factors(spec), 0)
         if cands and df > 0 and options.modification_indices:
             D_cand = entry_derivatives(final, *candidate_arrays(cands))[0][:, pairs[0], pairs[1]]
@@ -194,18 +180,15 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     if moments.continuous:
         warnings.append("continuous items are analysed beside the ordinal ones in the correlation metric (polyserial and "
                         "Pearson correlations): their unstandardized estimates are in standard-deviation units")
-    group = GroupResult(None, summary, fit.chi_square if fit else None, fit.srmr if fit else None,
-                        dict(zip(table.observed, (float(v) for v in r_squared(final)))), R, sigma, R - sigma, np.zeros(p),
-                        None, None, tuple(factors), tuple(htmt))
+    group = GroupResult(label=None, data=summary, chi_square=fit.chi_square if fit else None, srmr=fit.srmr if fit else None,
+                        r_squared=dict(zip(table.observed, (float(v) for v in r_squared(final)))), sample_covariance=R,
+                        implied_covariance=sigma, residual_correlations=R - sigma, sample_mean=np.zeros(p),
+                        implied_mean=None, normality=None, reliability=tuple(factors), htmt=tuple(htmt))
     fit_method = _fit_method(method, Items.MIXED if moments.continuous else Items.ORDINAL, thresholds=False)
-    return FitResult(
-        model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
-        estimator=fit_method.sentence(), method=fit_method,
-        converged=opt.converged, iterations=opt.iterations, message=message, n_obs=n, data=summary,
-        observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
-        modification_indices=tuple(modification), groups=(group,), warnings=tuple(warnings), mi_threshold=options.mi_threshold,
-        mi_top=options.mi_top, theta=theta,
-    )
+    return fit_result(spec=spec, method=fit_method, converged=opt.converged, iterations=opt.iterations, message=message,
+                      theta=theta, n_obs=n, data=summary, observed=table.observed, latent=table.latent, fit=fit,
+                      robust=robust, estimates=estimates, modification_indices=modification, groups=(group,),
+                      warnings=warnings, options=options)
 
 
 # ---------------------------------------------------------------- several groups
@@ -364,14 +347,16 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
             D_base[g * K:(g + 1) * K, slices[g].start:slices[g].start + K] = np.eye(K)
             eg = e[slices[g]]
             shares[g] = float(moments[g].n_obs * eg @ (obj.w[g] * eg))
+        latent_correlations = []
+        for g in range(G):
             sigma = mats[g].implied_covariance()
             sd = np.sqrt(np.diag(sigma))
-            srmrs[g] = float(np.sqrt(np.mean((moments[g].correlations - sigma / np.outer(sd, sd))[np.tril_indices(p)] ** 2)))
-        srmr = float(sum(wg * s for wg, s in zip(obj.weights, srmrs)))
+            latent_correlations.append((moments[g].correlations, sigma / np.outer(sd, sd), moments[g].n_obs))
+        overall_srmr, srmrs = srmr(latent_correlations)
         test = adjusted_test(T, df, D, w, gamma)
         base = adjusted_test(T_base, base_df, D_base, w, gamma)
-        fit = _fit_indices(T, df, T_base, base_df, n, table.n_free, srmr, G)
-        robust = _robust(test, base, df, base_df, n, G)
+        fit = _least_squares_fit(T, df, T_base, base_df, n, table.n_free, overall_srmr, G)
+        robust = adjusted_fit(test, base, df, base_df, n, G)
         if modification and df > 0 and options.modification_indices:
             exo = exogenous_factors(spec)
             modification_rows = ordinal_score_tests(est, [candidate_entries(table, exo, g) for g in range(G)])
@@ -394,22 +379,19 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                                     declared=spec.reverse_keyed or None, sum_scores=False)
         if est.converged:
             warnings.extend(keying_warnings(factors, f"group {lab}: "))
-        group_results.append(GroupResult(lab, summary, shares[g], srmrs[g],
-                                         dict(zip(table.observed, (float(v) for v in r_squared(mats[g])))),
-                                         mg.correlations, rho, mg.correlations - rho, np.zeros(p), None, None,
-                                         tuple(factors), tuple(htmt)))
+        group_results.append(GroupResult(label=lab, data=summary, chi_square=shares[g], srmr=srmrs[g],
+                                         r_squared=dict(zip(table.observed, (float(v) for v in r_squared(mats[g])))),
+                                         sample_covariance=mg.correlations, implied_covariance=rho,
+                                         residual_correlations=mg.correlations - rho, sample_mean=np.zeros(p),
+                                         implied_mean=None, normality=None, reliability=tuple(factors), htmt=tuple(htmt)))
     total = DataSummary(moments[0].source, sum(m.rows_read for m in moments), dropped, n, table.observed,
                         tuple(float(v) for v in sum(m.n_obs * m.means for m in moments) / n),
                         tuple(float(v) for v in moments[0].sds))
-    return FitResult(
-        model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
-        estimator=_fit_method(method, Items.ORDINAL, thresholds=True).sentence(G),
-        method=_fit_method(method, Items.ORDINAL, thresholds=True),
-        converged=est.converged, iterations=est.iterations, message=est.message, n_obs=n, data=total,
-        observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
-        modification_indices=tuple(modification_rows), groups=tuple(group_results), group_column=group_column,
-        warnings=tuple(warnings), mi_threshold=options.mi_threshold, mi_top=options.mi_top, theta=theta,
-    )
+    return fit_result(spec=spec, method=_fit_method(method, Items.ORDINAL, thresholds=True), converged=est.converged,
+                      iterations=est.iterations, message=est.message, theta=theta, n_obs=n, data=total,
+                      observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
+                      modification_indices=modification_rows, groups=group_results, warnings=warnings, options=options,
+                      group_column=group_column)
 
 
 def fit_ordinal_groups(spec: Spec, groups: list, options, method: Weighting | str = Weighting.DIAGONAL,

@@ -261,3 +261,22 @@ class FitResult(Presentable):
         out["modification_indices"] = [clean(m.to_dict()) for m in self.reported_modification_indices()]
         out["warnings"] = list(self.warnings)
         return out
+
+
+def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, message: str, theta: np.ndarray | None,
+               n_obs: int, data: DataSummary, observed: tuple[str, ...], latent: tuple[str, ...], fit: FitIndices | None,
+               robust: RobustFit | None, estimates, modification_indices, groups, warnings, options,
+               group_column: str | None = None) -> FitResult:
+    """The one place a FitResult is assembled, for every estimator (continuous, incomplete and ordinal
+    items, one group or several), from the estimation's and the assessment's pieces.  The model's
+    names and text come from ``spec``, the estimator line from ``method``, the display settings of
+    modification indices from ``options``."""
+    groups = tuple(groups)
+    return FitResult(
+        model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
+        estimator=method.sentence(len(groups)), method=method, converged=converged, iterations=iterations,
+        message=message, n_obs=n_obs, data=data, observed=observed, latent=latent, fit=fit, robust=robust,
+        estimates=tuple(estimates), modification_indices=tuple(modification_indices), groups=groups,
+        group_column=group_column, warnings=tuple(warnings), mi_threshold=options.mi_threshold, mi_top=options.mi_top,
+        theta=theta,
+    )
