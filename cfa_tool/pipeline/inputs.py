@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import os
 from dataclasses import replace
+from functools import lru_cache
 from pathlib import Path
 
 import numpy as np
@@ -278,11 +279,19 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
 
 def _described(result: FitResult, spec: Spec, groups: tuple[str, ...] | None, ordinal_items=()) -> FitResult:
     """The result with the description of exactly the model fitted (for the methods paragraph)."""
+    items = tuple(sorted(ordinal_items)) if groups is not None else None
+    return replace(result, description=_description(spec, groups, items))
+
+
+@lru_cache(maxsize=16)
+def _description(spec: Spec, groups: tuple[str, ...] | None, ordinal_items: tuple[str, ...] | None):
+    """The description depends only on the model and the groups (all immutable), so refits of one
+    model (loops, resampling) build it once."""
     from cfa_tool.model.description import describe
     from cfa_tool.model.parameters import build_parameter_table
 
-    ordinal = {x: 1 for x in ordinal_items} if groups is not None else None  # thresholds do not change the description
-    return replace(result, description=describe(spec, build_parameter_table(spec, groups, ordinal=ordinal)))
+    ordinal = {x: 1 for x in ordinal_items} if ordinal_items is not None else None  # thresholds do not change it
+    return describe(spec, build_parameter_table(spec, groups, ordinal=ordinal))
 
 
 def converged(result: FitResult) -> FitResult:
