@@ -11,7 +11,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from cfa_tool.assessment.admissibility import admissibility_warnings
+from cfa_tool.assessment.admissibility import solution_problems
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, normalized_residuals
 from cfa_tool.assessment.fit_indices import fit_indices, srmr_value
@@ -289,15 +289,13 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         inference = wald_inference(values, model.J, cov_theta)
         if options.modification_indices:
             mis = modification_indices(model, theta, likelihood, exogenous_factors(spec))
-        for g, m in enumerate(mats):
-            prefix = f"group '{table.groups[g]}': " if multi else ""
-            warnings.extend(prefix + w for w in admissibility_warnings(m, table.observed, table.latent))
     else:
         # a model that is not identified often shows itself by not converging: say so when it is the cause
         evaluation = likelihood.evaluate(theta)
         if evaluation is not None and np.all(np.isfinite(evaluation.information)):
             check_information_rank(evaluation.information, table.free_labels)
-        warnings.append(f"the estimation did not converge ({est.message}); no result from it should be interpreted")
+    problems = solution_problems(table, mats, theta, cov_theta if est.converged else None, est.converged, est.message,
+                                 options.max_iterations)
 
     estimates = estimate_rows(table, values, inference, std_all, std_lv)
 
@@ -354,6 +352,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         groups=tuple(group_results),
         group_column=group_column,
         warnings=tuple(warnings),
+        problems=problems,
         mi_threshold=options.mi_threshold,
         mi_top=options.mi_top,
         theta=theta,

@@ -16,7 +16,7 @@ from dataclasses import replace as dc_replace
 
 import numpy as np
 
-from cfa_tool.assessment.admissibility import admissibility_warnings
+from cfa_tool.assessment.admissibility import solution_problems
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.fit_indices import FitIndices, chi_square_p, cfi_value, rmsea_interval, rmsea_value, tli_value
 from cfa_tool.assessment.identification import check_information_rank
@@ -173,10 +173,9 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
             D_cand = entry_derivatives(final, *candidate_arrays(cands))[0][:, pairs[0], pairs[1]]
             mi, epc = least_squares_score_tests(D, D_cand, R[pairs] - sigma[pairs], weights, gamma, n)
             modification = _modification_rows([cands], mi, epc, lambda g: final, lambda g: None)
-        warnings.extend(admissibility_warnings(final, table.observed, table.latent))
         warnings.append(ORDINAL_NOTE)
-    else:
-        warnings.append(f"the estimation did not converge ({message}); no result from it should be interpreted")
+    problems = solution_problems(table, [final], theta, cov_theta if opt.converged else None, opt.converged, message,
+                                 options.max_iterations)
     derived = frozenset(e for e, par in enumerate(table.parameters)
                         if par.kind == "residual_variance" and par.variables[0] in derived_items)
     estimates = estimate_rows(table, values, inference, std_all, std_lv, derived)
@@ -199,7 +198,7 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
                   + "), robust standard errors",
         converged=opt.converged, iterations=opt.iterations, message=message, n_obs=n, data=summary,
         observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
-        modification_indices=tuple(modification), groups=(group,), warnings=tuple(warnings), mi_threshold=options.mi_threshold,
+        modification_indices=tuple(modification), groups=(group,), warnings=tuple(warnings), problems=problems, mi_threshold=options.mi_threshold,
         mi_top=options.mi_top, theta=theta,
     )
 
@@ -343,7 +342,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     if est.converged:
         D, e, w, gamma = obj.stacked(theta)
         check_information_rank(D @ (D.T * w[:, None]), table.free_labels)
-        inference = wald_inference(values, model.J, robust_covariance(D, w, gamma, n))
+        cov_theta = robust_covariance(D, w, gamma, n)
+        inference = wald_inference(values, model.J, cov_theta)
         df = est.df
         T = est.statistic
         slices = obj.group_slices()
@@ -368,12 +368,10 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         if modification and df > 0 and options.modification_indices:
             exo = exogenous_factors(spec)
             modification_rows = ordinal_score_tests(est, [candidate_entries(table, exo, g) for g in range(G)])
-        for g in range(G):
-            warnings.extend(f"group {table.groups[g]}: {w_}" for w_ in admissibility_warnings(mats[g], table.observed, table.latent))
         warnings.append(GROUPS_NOTE)
         warnings.append(ORDINAL_NOTE)
-    else:
-        warnings.append(f"the estimation did not converge ({est.message}); no result from it should be interpreted")
+    problems = solution_problems(table, list(mats), theta, cov_theta if est.converged else None, est.converged,
+                                 est.message, options.max_iterations)
     estimates = estimate_rows(table, values, inference, std_all, std_lv)
     group_results = []
     for g, (lab, m) in enumerate(groups):
@@ -401,7 +399,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         converged=est.converged, iterations=est.iterations, message=est.message, n_obs=n, data=total,
         observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
         modification_indices=tuple(modification_rows), groups=tuple(group_results), group_column=group_column,
-        warnings=tuple(warnings), mi_threshold=options.mi_threshold, mi_top=options.mi_top, theta=theta,
+        warnings=tuple(warnings), problems=problems, mi_threshold=options.mi_threshold, mi_top=options.mi_top,
+        theta=theta,
     )
 
 

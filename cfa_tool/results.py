@@ -190,6 +190,14 @@ class FitResult:
     missing_data: dict | None = None  # coverage per item and missing-data patterns
     labels: dict | None = None  # variable and value labels from SPSS/Stata files
     description: object | None = None  # model.description.ModelDescription: what exactly was fitted
+    problems: tuple = ()  # assessment.admissibility.Problem: what makes the solution impossible or doubtful
+
+    @property
+    def admissible(self) -> bool:
+        """Whether the solution is possible at all: converged, and no problem that makes it inadmissible
+        (negative variances, correlations beyond +/-1, matrices not positive definite, estimates on a bound,
+        parameters the data barely determine)."""
+        return self.converged and not any(p.kind.inadmissible for p in self.problems)
 
     # -- single-group conveniences (the first group when there are several)
     @property
@@ -232,6 +240,8 @@ class FitResult:
 
     def to_dict(self) -> dict:
         out = {
+            "admissible": self.admissible,
+            "problems": [p.to_dict() for p in self.problems],
             "converged": self.converged,
             "estimator": self.estimator,
             "n_obs": self.n_obs,

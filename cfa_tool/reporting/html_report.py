@@ -22,13 +22,17 @@ td.r,th.r{text-align:right;font-variant-numeric:tabular-nums} td.l,th.l{text-ali
 .summary{background:#f4f7fb;border-left:4px solid #1f3b73;padding:.8em 1em} pre{background:#f6f6f6;padding:.8em;overflow-x:auto}
 .diagram{overflow-x:auto;border:1px solid #ddd;padding:.5em} td.heat{text-align:right;min-width:3em}
 ul.warnings li{margin:.3em 0}
+.problems{background:#fdecea;border:2px solid #b3261e;padding:.6em 1em;margin:1em 0}
+.problems.caution-only{background:#fff7e6;border-color:#e0a030} .problems h2{border:none;margin:.2em 0;color:#b3261e}
+.problems li{margin:.35em 0} tr.problem td{background:#fdecea;color:#8c1d18;font-weight:bold}
 """
 
 
 def table_html(table: ReportTable) -> str:
     head = "".join(f'<th class="{a}">{esc(c)}</th>' for c, a in zip(table.columns, table.align))
-    body = "".join("<tr>" + "".join(f'<td class="{a}">{esc(v)}</td>' for v, a in zip(row, table.align)) + "</tr>"
-                   for row in table.rows)
+    body = "".join(('<tr class="problem">' if k in table.flagged else "<tr>")
+                   + "".join(f'<td class="{a}">{esc(v)}</td>' for v, a in zip(row, table.align)) + "</tr>"
+                   for k, row in enumerate(table.rows))
     note = f'<p class="note">{esc(table.note)}</p>' if table.note else ""
     return (f'<table id="{esc(table.key)}"><caption>{esc(table.title)}</caption><thead><tr>{head}</tr></thead>'
             f"<tbody>{body}</tbody></table>{note}")
@@ -56,9 +60,23 @@ def heat_map(result, group: int = 0) -> str:
             f'<thead><tr><th></th>{head}</tr></thead><tbody>{"".join(rows)}</tbody></table>')
 
 
+def problem_banner(result) -> str:
+    """The problems of the solution as a banner above everything else ('' when there are none)."""
+    notice = T.problem_notice(result)
+    if notice is None:
+        return ""
+    cls = "problems" if notice.inadmissible else "problems caution-only"
+    items = "".join(f"<li>{esc(line)}</li>" for line in notice.lines)
+    return f'<div class="{cls}" id="problems" role="alert"><h2>{esc(notice.heading)}</h2><ul>{items}</ul></div>'
+
+
 def result_tables_html(result) -> str:
-    """The tables of a fit, as an HTML fragment (also what notebooks show)."""
-    parts = []
+    """The tables of a fit, as an HTML fragment (also what notebooks show): the problems first, then
+    the rows used, then the tables."""
+    d = result.data
+    parts = [problem_banner(result)] if T.problem_notice(result) is not None else []
+    parts += [f'<p class="note">N = {d.n_obs} rows analysed of {d.rows_read} read'
+             f"{'' if not d.rows_dropped else f'; {d.rows_dropped} rows left out'}. {esc(T.status_line(result))}.</p>"]
     if result.fit is not None and result.converged:
         parts.append(table_html(T.fit_table(result)))
     for g, group in enumerate(result.groups):
@@ -74,6 +92,7 @@ def result_tables_html(result) -> str:
 def html_report(result) -> str:
     d = result.data
     sections = [
+        problem_banner(result),
         f"<h1>{esc(result.model_name)}</h1>",
         f'<p class="note">Model file {esc(result.model_source)}; data {esc(d.source)}; {d.n_obs} rows analysed of {d.rows_read} read'
         f"{'' if not d.rows_dropped else f', {d.rows_dropped} left out'}. {esc(T.status_line(result))}.</p>",

@@ -200,6 +200,12 @@ def methods_paragraph(result) -> str:
     else:
         parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
+    inadmissible = not result.admissible
+    if inadmissible:
+        named = [p.phrase() for p in result.problems if p.kind.inadmissible]
+        parts.append(f"The solution was not admissible: it has {_list(named)}. Its estimates therefore cannot "
+                     f"describe a population and its fit is not evidence for the model; the values below are reported "
+                     f"only so that the problem can be judged.")
     parts.append(_fit_sentence(result))
     loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed]
     if loadings:
@@ -207,7 +213,7 @@ def methods_paragraph(result) -> str:
     corr = [r.standardized for r in result.estimates if r.kind == "factor_covariance"]
     if corr and not result.multigroup:
         parts.append(f"Factor correlations ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}.")
-    if result.fit.df > 0:
+    if result.fit.df > 0 and not inadmissible:
         parts.append("Fit was judged against conventional guide values (e.g., CFI \u2265 .95, RMSEA \u2264 .06, "
                      "SRMR \u2264 .08; Hu & Bentler, 1999), which are conventions rather than strict criteria.")
     return " ".join(parts)

@@ -38,11 +38,50 @@ class ReportTable:
     align: tuple[str, ...]  # "l" or "r" per column
     rows: tuple[tuple[str, ...], ...]
     note: str | None = None
+    flagged: tuple[int, ...] = ()  # rows that show a problem of the solution (marked in every format)
+    # the same content as numbers, for data files (CSV), where a cell such as '< .001' or '[.04, .09]' would be
+    # text: None when every text cell already reads as a number
+    value_columns: tuple[str, ...] | None = None
+    values: tuple[tuple, ...] | None = None
 
 
-def _table(key: str, title: str, columns: list[tuple[str, str]], rows: list[list[str]], note: str | None = None) -> ReportTable:
+def _table(key: str, title: str, columns: list[tuple[str, str]], rows: list[list[str]], note: str | None = None,
+           flagged: tuple[int, ...] = (), values: tuple[list[str], list[list]] | None = None) -> ReportTable:
     return ReportTable(key, title, tuple(c for c, _ in columns), tuple(a for _, a in columns),
-                       tuple(tuple(r) for r in rows), note)
+                       tuple(tuple(r) for r in rows), note, flagged,
+                       tuple(values[0]) if values else None, tuple(tuple(v) for v in values[1]) if values else None)
+
+
+@dataclass(frozen=True)
+class ProblemNotice:
+    """What every view of a result shows before anything else when the solution has problems."""
+
+    heading: str
+    lines: tuple[str, ...]
+    inadmissible: bool
+
+
+NOT_ADMISSIBLE = "This solution is not admissible: do not interpret its estimates or its fit"
+CAUTION = "Check before interpreting this solution"
+
+
+def problem_notice(result) -> ProblemNotice | None:
+    """The problems of ``result``'s solution as a heading and one line per problem (None when there are none)."""
+    problems = getattr(result, "problems", ())
+    if not problems:
+        return None
+    lines = tuple((f"Group {p.group}: " if p.group is not None else "") + f"{p.explanation} What to try: {p.advice}"
+                  for p in problems)
+    inadmissible = not result.admissible
+    return ProblemNotice(NOT_ADMISSIBLE if inadmissible else CAUTION, lines, inadmissible)
+
+
+def row_problem(result, kind: str, variables: tuple[str, ...], group: str | None) -> str:
+    """The few words a table row shows when its parameter is part of a problem ('' when it is not)."""
+    for p in getattr(result, "problems", ()):
+        if p.touches(kind, variables, group):
+            return p.kind.short
+    return ""
 
 
 def p_phrase(p) -> str:
@@ -81,7 +120,31 @@ def fit_table(result) -> ReportTable:
         rows += [["Log-likelihood", num(f.log_likelihood), ""],
                  ["AIC / BIC / adjusted BIC", f"{num(f.aic)} / {num(f.bic)} / {num(f.sabic)}", "lower is better"]]
     rows.append(["Free parameters", str(f.n_free_parameters), ""])
-    return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")], rows, GUIDE_NOTE)
+    return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")], rows, GUIDE_NOTE,
+                  values=(["Index", "Value", "df", "p", "90% lower", "90% upper"], _fit_values(result)))
+
+
+def _fit_values(result) -> list[list]:
+    """The fit table's numbers, one index per row (for data files)."""
+    f, r, nan = result.fit, result.robust, None
+    rows = [["Chi-square", f.chi_square, f.df, f.p_value, nan, nan]]
+    if f.df > 0:
+        rows += [["CFI", f.cfi, nan, nan, nan, nan], ["TLI", f.tli, nan, nan, nan, nan],
+                 ["RMSEA", f.rmsea, nan, nan, *f.rmsea_ci90]]
+        if not missing(f.rmsea_p_close):
+            rows.append(["Test of close fit (RMSEA <= .05)", nan, nan, f.rmsea_p_close, nan, nan])
+    rows.append(["SRMR", f.srmr, nan, nan, nan, nan])
+    if r is not None:
+        rows += [[f"Scaled chi-square ({r.method})", r.chi_square_scaled, r.df, r.p_value_scaled, nan, nan],
+                 ["Scaling factor", r.scaling_factor, nan, nan, nan, nan],
+                 ["Robust CFI", r.cfi_robust, nan, nan, nan, nan], ["Robust TLI", r.tli_robust, nan, nan, nan, nan],
+                 ["Robust RMSEA", r.rmsea_robust, nan, nan, *r.rmsea_robust_ci90]]
+    rows.append(["Baseline (independence) chi-square", f.baseline_chi_square, f.baseline_df, nan, nan, nan])
+    if not missing(f.log_likelihood):
+        rows += [["Log-likelihood", f.log_likelihood, nan, nan, nan, nan], ["AIC", f.aic, nan, nan, nan, nan],
+                 ["BIC", f.bic, nan, nan, nan, nan], ["Adjusted BIC", f.sabic, nan, nan, nan, nan]]
+    rows.append(["Free parameters", f.n_free_parameters, nan, nan, nan, nan])
+    return rows
 
 
 def estimate_tables(result, group: int = 0) -> list[ReportTable]:
@@ -100,9 +163,19 @@ def estimate_tables(result, group: int = 0) -> list[ReportTable]:
         cols += [("Estimate", "r"), ("SE", "r"), ("z", "r"), ("p", "r"), ("95% CI", "r"), ("Standardized", "r")]
         if kind == "loading":
             cols.append(("R²", "r"))
+        marks = [row_problem(result, kind, r.variables, r.group) for r in rows]
+        if kind == "loading":  # an indicator with R-squared above 1 is marked on its loading rows
+            marks = [m or ("R² above 1: impossible" if r_squared.get(r.variables[1], 0.0) > 1.0 else "")
+                     for m, r in zip(marks, rows)]
+        if any(marks):
+            cols.append(("Problem", "l"))
         body = []
+        numbers = []
         previous = None
-        for r in rows:
+        for r, mark in zip(rows, marks):
+            numbers.append(list(r.variables) + [r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0], r.ci95[1],
+                                                r.standardized, "yes" if r.free else "no"]
+                           + ([r_squared.get(r.variables[1])] if kind == "loading" else []) + ([mark] if any(marks) else []))
             names = list(r.variables)
             if kind in ("loading", "threshold"):
                 shown = names[0] if names[0] != previous else ""
@@ -114,8 +187,14 @@ def estimate_tables(result, group: int = 0) -> list[ReportTable]:
             if kind == "loading":
                 r2 = r_squared.get(r.variables[1])
                 cells.append(num(r2) if r2 is not None else "")
+            if any(marks):
+                cells.append(mark)
             body.append(cells)
-        tables.append(_table(kind + suffix, title, cols, body))
+        value_columns = [c for c, _ in cols[:len(rows[0].variables)]] + [
+            "Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper", "Standardized", "Free"] + (
+            ["R²"] if kind == "loading" else []) + (["Problem"] if any(marks) else [])
+        tables.append(_table(kind + suffix, title, cols, body, flagged=tuple(i for i, m in enumerate(marks) if m),
+                             values=(value_columns, numbers)))
     return tables
 
 
@@ -228,7 +307,9 @@ def case_table(result, group: int = 0) -> ReportTable | None:
     return _table(f"cases_{group}", "Rows that contribute most to the chi-square",
                   [("Data row", "r"), ("Share of chi-square", "r"), ("Squared Mahalanobis distance", "r"), ("p", "r")],
                   [[str(c.row), num(c.chi_square_share, 2), num(c.mahalanobis, 2), p_value(c.p_value)] for c in cases[:5]],
-                  "Each row's share sums over all rows to the chi-square; large shares and distances point at rows worth checking.")
+                  "Each row's share sums over all rows to the chi-square; large shares and distances point at rows worth checking.",
+                  values=(["Data row", "Share of chi-square", "Squared Mahalanobis distance", "p"],
+                          [[c.row, c.chi_square_share, c.mahalanobis, c.p_value] for c in cases[:5]]))
 
 
 def item_table(result) -> ReportTable:

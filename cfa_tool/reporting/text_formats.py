@@ -5,6 +5,8 @@ from __future__ import annotations
 import csv
 import io
 
+import numpy as np
+
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import latex_text, markdown_text
 from cfa_tool.reporting.paragraph import methods_paragraph
@@ -61,9 +63,12 @@ def markdown_table(table: ReportTable) -> str:
 
 
 def markdown_report(result) -> str:
-    parts = [f"# {markdown_text(result.model_name)}", "",
-             markdown_text(f"Data: {result.data.source}; {result.data.n_obs} rows analysed of {result.data.rows_read} read. "
-                           f"{T.status_line(result)}."), "",
+    parts = [f"# {markdown_text(result.model_name)}", ""]
+    notice = T.problem_notice(result)
+    if notice is not None:
+        parts += [f"## {markdown_text(notice.heading)}", ""] + [f"- {markdown_text(line)}" for line in notice.lines] + [""]
+    parts += [markdown_text(f"Data: {result.data.source}; {result.data.n_obs} rows analysed of {result.data.rows_read} read. "
+                            f"{T.status_line(result)}."), "",
              "## Summary for a paper", "", markdown_text(methods_paragraph(result)), ""]
     for line in T.normality_lines(result):
         parts += [markdown_text(line), ""]
@@ -75,11 +80,30 @@ def markdown_report(result) -> str:
     return "\n".join(parts)
 
 
+def _csv_number(value) -> str:
+    """A number as a data file holds it: full precision, a missing value empty."""
+    if value is None:
+        return ""
+    if isinstance(value, (bool, np.bool_)):
+        return "yes" if value else "no"
+    if isinstance(value, (int, np.integer)):
+        return str(int(value))
+    if isinstance(value, (float, np.floating)):
+        return "" if not np.isfinite(value) else repr(float(value))
+    return csv_cell(value)
+
+
 def csv_table(table: ReportTable) -> str:
+    """A table as CSV: numbers as numbers (the table's values when it has them: p-values and interval ends in
+    their own columns), text guarded against spreadsheet formulas."""
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow([csv_cell(c) for c in table.columns])
-    writer.writerows([csv_cell(v) for v in row] for row in table.rows)
+    if table.values is not None:
+        writer.writerow([csv_cell(c) for c in table.value_columns])
+        writer.writerows([_csv_number(v) for v in row] for row in table.values)
+    else:
+        writer.writerow([csv_cell(c) for c in table.columns])
+        writer.writerows([csv_cell(v) for v in row] for row in table.rows)
     return buffer.getvalue()
 
 

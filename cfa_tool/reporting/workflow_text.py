@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import numpy as np
 from rich.console import Console
 from rich.text import Text
 
@@ -9,24 +10,44 @@ from cfa_tool.reporting.numbers import num, p_value, unit
 from cfa_tool.reporting.terminal import GUIDE_NOTE, HIGH_STAKES_NOTE, _table
 
 
-def _fit_cells(fit) -> list[str]:
-    low, high = fit.rmsea_ci90
-    rmsea = f"{unit(fit.rmsea)} [{unit(low)}, {unit(high)}]" if fit.df > 0 else ""
-    return [f"{fit.chi_square:.3f}", str(fit.df), p_value(fit.p_value), unit(fit.cfi), unit(fit.tli),
-            rmsea, unit(fit.srmr), num(fit.aic, 1), num(fit.bic, 1)]
-
-
-_FIT_COLUMNS = [("Chi-square", "right"), ("df", "right"), ("p", "right"), ("CFI", "right"), ("TLI", "right"),
-                ("RMSEA [90% interval]", "right"), ("SRMR", "right"), ("AIC", "right"), ("BIC", "right")]
-
-
 def _difference_cells(t) -> list[str]:
     return [f"{t.chi_square_difference:.3f}", str(t.df_difference), p_value(t.p_value), f"{t.delta_cfi:+.3f}",
             f"{t.delta_rmsea:+.3f}"]
 
 
+def _admissible_cell(result) -> str:
+    if not result.converged:
+        return "did not converge"
+    return "yes" if result.admissible else "NO"
+
+
+def _problem_warnings(named_results, console: Console) -> None:
+    """One warning per model whose solution is not admissible (problems first)."""
+    for name, r in named_results:
+        if r.converged and not r.admissible:
+            console.print(Text(f"Warning: the solution of {name} is not admissible (" + "; ".join(
+                p.phrase() for p in r.problems if p.kind.inadmissible) + "): do not interpret its estimates or fit, and "
+                "do not choose it over another model on its fit.", style="bold"))
+
+
+_COMPARISON_ROWS = ("Admissible", "Free parameters", "Chi-square", "df", "p", "CFI", "TLI", "RMSEA",
+                    "  90% interval", "SRMR", "AIC", "BIC")
+
+
+def _comparison_cells(r) -> list[str]:
+    if r.fit is None or not r.converged:
+        return [_admissible_cell(r)] + [""] * (len(_COMPARISON_ROWS) - 1)
+    f = r.fit
+    low, high = f.rmsea_ci90
+    tested = f.df > 0
+    return [_admissible_cell(r), str(f.n_free_parameters), f"{f.chi_square:.3f}", str(f.df), p_value(f.p_value),
+            unit(f.cfi), unit(f.tli), unit(f.rmsea) if tested else "", f"[{unit(low)}, {unit(high)}]" if tested else "",
+            unit(f.srmr), num(f.aic, 1), num(f.bic, 1)]
+
+
 def render_comparison(comparison, console: Console) -> None:
     console.print(Text("Model comparison", style="bold underline"))
+    _problem_warnings(zip(comparison.names, comparison.results), console)
     total = comparison.n_obs + comparison.rows_dropped
     if comparison.rows_dropped > 0.05 * total:  # problems first
         console.print(Text(f"Warning: {comparison.rows_dropped} of {total} rows ({100 * comparison.rows_dropped / total:.0f}%) "
@@ -34,17 +55,28 @@ def render_comparison(comparison, console: Console) -> None:
                            f"compared on the same rows; the rows left out may differ from those kept.", style="bold"))
     console.print(f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
                   f"answer on any model's variables left out).")
-    table = _table("Fit of each model", [("Model", "left"), ("Parameters", "right")] + _FIT_COLUMNS)
-    for name, r in zip(comparison.names, comparison.results):
-        if r.fit is None or not r.converged:
-            table.add_row(name, "", "did not converge", *[""] * (len(_FIT_COLUMNS) - 1))
-        else:
-            table.add_row(name, str(r.fit.n_free_parameters), *_fit_cells(r.fit))
+    # one column per model, one row per index: readable in 80 columns for the usual two to four models
+    table = _table("Fit of each model", [("", "left")] + [(name, "right") for name in comparison.names])
+    cells = [_comparison_cells(r) for r in comparison.results]
+    for k, label in enumerate(_COMPARISON_ROWS):
+        table.add_row(label, *[c[k] for c in cells], style="bold" if k == 0 else None)
     console.print(table)
+    fitted = [(name, r) for name, r in zip(comparison.names, comparison.results) if r.converged and r.fit is not None]
+    lowest: dict[str, list[str]] = {}
+    for index in ("AIC", "BIC"):
+        scored = [(getattr(r.fit, index.lower()), name, r) for name, r in fitted
+                  if np.isfinite(getattr(r.fit, index.lower()))]
+        if len(scored) > 1:
+            _, name, best = min(scored, key=lambda t: t[0])
+            if not best.admissible:
+                lowest.setdefault(name, []).append(index)
+    for name, indices in lowest.items():
+        console.print(Text(f"The lowest {' and '.join(indices)} belong{'s' if len(indices) == 1 else ''} to {name}, whose "
+                           f"solution is not admissible: that is no reason to prefer it.", style="bold"))
     if comparison.tests:
         tests = _table("Nested models: chi-square difference tests",
-                       [("Restricted model", "left"), ("General model", "left"), ("Test", "left"), ("Difference", "right"),
-                        ("df", "right"), ("p", "right"), ("Change in CFI", "right"), ("Change in RMSEA", "right")])
+                       [("Restricted", "left"), ("General", "left"), ("Test", "left"), ("Difference", "right"),
+                        ("df", "right"), ("p", "right"), ("CFI change", "right"), ("RMSEA change", "right")])
         for t in comparison.tests:
             tests.add_row(t.restricted, t.general, t.method, *_difference_cells(t))
         console.print(tests)
@@ -59,22 +91,34 @@ def render_invariance(result, console: Console) -> None:
     console.print(f"Reference group (factor means fixed at zero): {result.groups[0]}")
     for w in result.warnings:  # problems first
         console.print(Text(f"Warning: {w}", style="bold"))
-    table = _table("The ladder", [("Level", "left"), ("Chi-square", "right"), ("df", "right"), ("p", "right"),
-                                  ("CFI", "right"), ("RMSEA", "right"), ("Difference", "right"), ("df", "right"),
-                                  ("p", "right"), ("Change in CFI", "right"), ("Change in RMSEA", "right"), ("Holds", "left")])
+    # two narrow tables (each level's own fit; each step against the one before) read in 80 columns
+    table = _table("Fit of each level", [("Level", "left"), ("Chi-square (df)", "right"), ("p", "right"),
+                                         ("CFI", "right"), ("RMSEA", "right"), ("SRMR", "right"), ("Admissible", "left")])
+    steps = _table("Each step against the one before", [("Level", "left"), ("Difference (df)", "right"), ("p", "right"),
+                                                        ("CFI change", "right"), ("RMSEA change", "right"),
+                                                        ("Holds", "left")])
     adjusted = any(step.result.robust is not None for step in result.steps)
     for step in result.steps:
         fit, robust = step.result.fit, step.result.robust
-        if fit is None:
+        if fit is None or not step.result.converged:
             cells = ["did not converge", "", "", "", ""]
         elif adjusted and robust is not None:  # ordinal items: the adjusted statistic and robust indices
-            cells = [f"{robust.chi_square_scaled:.3f}", str(robust.df), p_value(robust.p_value_scaled), unit(robust.cfi_robust),
-                     unit(robust.rmsea_robust)]
+            cells = [f"{robust.chi_square_scaled:.2f} ({robust.df})", p_value(robust.p_value_scaled),
+                     unit(robust.cfi_robust), unit(robust.rmsea_robust), unit(fit.srmr)]
         else:
-            cells = [f"{fit.chi_square:.3f}", str(fit.df), p_value(fit.p_value), unit(fit.cfi), unit(fit.rmsea)]
-        diff = _difference_cells(step.versus_previous) if step.versus_previous is not None else [""] * 5
+            cells = [f"{fit.chi_square:.2f} ({fit.df})", p_value(fit.p_value), unit(fit.cfi), unit(fit.rmsea),
+                     unit(fit.srmr)]
+        bad = step.result.converged and not step.result.admissible
+        table.add_row(step.level, *cells, _admissible_cell(step.result), style="bold red" if bad else None)
         verdict = ("yes" if step.holds else "no") + (" *" if step.conditional else "")
-        table.add_row(step.level, *cells, *diff, verdict)
+        if step.versus_previous is not None:
+            t = step.versus_previous
+            steps.add_row(step.level, f"{t.chi_square_difference:.2f} ({t.df_difference})", p_value(t.p_value),
+                          f"{t.delta_cfi:+.3f}", f"{t.delta_rmsea:+.3f}", verdict)
+        else:
+            steps.add_row(step.level, "its own fit", "", "", "", verdict)
+    console.print(table)
+    table = steps
     console.print(table)
     if any(step.conditional for step in result.steps):
         console.print("* tested after a step that did not hold: the comparison is between models already rejected.")
@@ -102,6 +146,8 @@ def render_invariance(result, console: Console) -> None:
 def render_replication(replications, console: Console) -> None:
     for rep in replications:
         console.print(Text(f"Replication: calibrated on {rep.calibration}, validated on {rep.validation}", style="bold underline"))
+        _problem_warnings([(f"the calibration fit ({rep.calibration})", rep.calibration_result),
+                           (f"the loose refit ({rep.validation})", rep.loose)], console)
         table = _table("", [("Check", "left"), ("Chi-square", "right"), ("df", "right"), ("p", "right"), ("RMSEA", "right"),
                             ("CFI", "right")])
         cal = rep.calibration_result.fit

@@ -43,7 +43,8 @@ class Comparison:
             "n_obs": self.n_obs,
             "rows_dropped": self.rows_dropped,
             "models": [
-                {"name": name, "source": r.model_source, "converged": r.converged,
+                {"name": name, "source": r.model_source, "converged": r.converged, "admissible": r.admissible,
+                 "problems": [p.to_dict() for p in r.problems],
                  "fit": clean(r.fit.to_dict()) if r.fit is not None and r.converged else None,
                  "robust": clean(r.robust.to_dict()) if r.robust is not None and r.converged else None}
                 for name, r in zip(self.names, self.results)

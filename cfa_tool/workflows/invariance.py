@@ -87,6 +87,8 @@ class InvarianceStep:
         return {
             "level": self.level,
             "converged": self.result.converged,
+            "admissible": self.result.admissible,
+            "problems": [p.to_dict() for p in self.result.problems],
             "fit": clean(self.result.fit.to_dict()) if self.result.fit is not None else None,
             "robust": clean(self.result.robust.to_dict()) if self.result.robust is not None else None,
             "versus_previous": vs,
@@ -192,6 +194,11 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                            f"it; they are marked as conditional on a rejected step")
     if freed:
         warnings.append(SEARCH_WARNING)
+    inadmissible = [s for s in steps if s.result.converged and not s.result.admissible]
+    for step in reversed(inadmissible):  # problems first: an impossible solution outranks every other note
+        warnings.insert(0, f"the {step.level} model's solution is not admissible ("
+                           + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
+                           + "): its fit and its difference test cannot show that invariance holds")
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, tuple(warnings))
 
 

@@ -47,9 +47,12 @@ class Replication:
         loose = self.loose.fit.to_dict() if self.loose.fit is not None else None
         return clean({
             "calibration": {"data": self.calibration, "n_obs": self.calibration_result.n_obs,
+                            "admissible": self.calibration_result.admissible,
+                            "problems": [p.to_dict() for p in self.calibration_result.problems],
                             "fit": self.calibration_result.fit.to_dict()},
             "validation": {"data": self.validation, "n_obs": self.loose.n_obs},
-            "loose": {"fit": loose},
+            "loose": {"fit": loose, "admissible": self.loose.admissible,
+                      "problems": [p.to_dict() for p in self.loose.problems]},
             "tight": {"chi_square": self.tight_chi_square, "df": self.tight_df, "p_value": self.tight_p_value,
                       "rmsea": self.tight_rmsea},
             "cross_validation_index": self.cvi,
