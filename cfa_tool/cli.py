@@ -81,6 +81,9 @@ def build_parser() -> argparse.ArgumentParser:
     inv.add_argument("--partial", choices=("none", "auto"), default="none",
                      help="'auto': when a step fails, free the constraint with the largest score test until it holds")
     inv.add_argument("--alpha", type=float, default=0.05, help="level of the chi-square difference tests (default .05)")
+    inv.add_argument("--decide-by", choices=tuple(m.value for m in _decision_rules()), default="difference-test",
+                     help="how each step is judged: the chi-square difference test (default), the change in CFI, RMSEA "
+                          "and SRMR against common-practice guides, or both")
     _add_ordinal_options(inv)
     _add_json_option(inv)
 
@@ -204,6 +207,12 @@ def _add_ordinal_options(p: argparse.ArgumentParser) -> None:
                    help="least squares for ordinal items (default diagonally-weighted)")
 
 
+def _decision_rules():
+    from cfa_tool.workflows.invariance import DecisionRule
+
+    return DecisionRule
+
+
 def _version() -> str:
     from cfa_tool import __version__
 
@@ -300,7 +309,8 @@ def _run(args: argparse.Namespace) -> int:
         from cfa_tool.workflows.invariance import invariance
 
         result = invariance(args.model, args.data, args.group, reference_group=args.reference_group,
-                            partial=args.partial, alpha=args.alpha, sheet=args.sheet, missing_codes=args.missing_codes,
+                            partial=args.partial, alpha=args.alpha, decide_by=args.decide_by, sheet=args.sheet,
+                            missing_codes=args.missing_codes,
                             keep=args.keep, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
         return _emit(args, result, render_invariance)
     if args.command == "replicate":

@@ -86,60 +86,94 @@ def render_comparison(comparison, console: Console) -> None:
     console.print(Text(GUIDE_NOTE, style="italic"))
 
 
+def _level_fit_cells(result, adjusted: bool) -> list[str]:
+    fit, robust = result.fit, result.robust
+    if fit is None or not result.converged:
+        return ["did not converge", "", "", "", ""]
+    if adjusted and robust is not None:  # ordinal items: the adjusted statistic and robust indices
+        return [f"{robust.chi_square_scaled:.2f} ({robust.df})", p_value(robust.p_value_scaled),
+                unit(robust.cfi_robust), unit(robust.rmsea_robust), unit(fit.srmr)]
+    return [f"{fit.chi_square:.2f} ({fit.df})", p_value(fit.p_value), unit(fit.cfi), unit(fit.rmsea), unit(fit.srmr)]
+
+
+def _step_cells(t, delta_srmr) -> list[str]:
+    return [f"{t.chi_square_difference:.2f} ({t.df_difference})", p_value(t.p_value), f"{t.delta_cfi:+.3f}",
+            f"{t.delta_rmsea:+.3f}", "" if delta_srmr is None else f"{delta_srmr:+.3f}"]
+
+
 def render_invariance(result, console: Console) -> None:
     console.print(Text(f"Measurement invariance across {result.group_column} ({', '.join(result.groups)})", style="bold underline"))
     console.print(f"Reference group (factor means fixed at zero): {result.groups[0]}")
     for w in result.warnings:  # problems first
         console.print(Text(f"Warning: {w}", style="bold"))
-    # two narrow tables (each level's own fit; each step against the one before) read in 80 columns
+    console.print(f"Each step after the configural one is judged by {result.rule.description}.")
+    # two narrow tables (each level's own fit; each step against the one before) read in 80 columns;
+    # a partially invariant step shows first with every equality, then with the freed ones
     table = _table("Fit of each level", [("Level", "left"), ("Chi-square (df)", "right"), ("p", "right"),
                                          ("CFI", "right"), ("RMSEA", "right"), ("SRMR", "right"), ("Admissible", "left")])
     steps = _table("Each step against the one before", [("Level", "left"), ("Difference (df)", "right"), ("p", "right"),
-                                                        ("CFI change", "right"), ("RMSEA change", "right"),
-                                                        ("Holds", "left")])
+                                                        ("\u0394CFI", "right"), ("\u0394RMSEA", "right"),
+                                                        ("\u0394SRMR", "right"), ("Holds", "left")])
     adjusted = any(step.result.robust is not None for step in result.steps)
     for step in result.steps:
-        fit, robust = step.result.fit, step.result.robust
-        if fit is None or not step.result.converged:
-            cells = ["did not converge", "", "", "", ""]
-        elif adjusted and robust is not None:  # ordinal items: the adjusted statistic and robust indices
-            cells = [f"{robust.chi_square_scaled:.2f} ({robust.df})", p_value(robust.p_value_scaled),
-                     unit(robust.cfi_robust), unit(robust.rmsea_robust), unit(fit.srmr)]
-        else:
-            cells = [f"{fit.chi_square:.2f} ({fit.df})", p_value(fit.p_value), unit(fit.cfi), unit(fit.rmsea),
-                     unit(fit.srmr)]
+        label = f"{step.level} ({len(step.freed)} freed)" if step.partial else step.level
+        if step.partial and step.full_result is not None:
+            table.add_row(f"{step.level} (all equal)", *_level_fit_cells(step.full_result, adjusted),
+                          _admissible_cell(step.full_result))
+            if step.full_test is not None:
+                before = result.steps[result.steps.index(step) - 1].result
+                srmr = step.full_result.fit.srmr - before.fit.srmr
+                steps.add_row(f"{step.level} (all equal)", *_step_cells(step.full_test, srmr),
+                              "yes" if step.full_holds else "no")
         bad = step.result.converged and not step.result.admissible
-        table.add_row(step.level, *cells, _admissible_cell(step.result), style="bold red" if bad else None)
+        table.add_row(label, *_level_fit_cells(step.result, adjusted), _admissible_cell(step.result),
+                      style="bold red" if bad else None)
         verdict = ("yes" if step.holds else "no") + (" *" if step.conditional else "")
         if step.versus_previous is not None:
-            t = step.versus_previous
-            steps.add_row(step.level, f"{t.chi_square_difference:.2f} ({t.df_difference})", p_value(t.p_value),
-                          f"{t.delta_cfi:+.3f}", f"{t.delta_rmsea:+.3f}", verdict)
+            steps.add_row(label, *_step_cells(step.versus_previous, step.delta_srmr), verdict)
         else:
-            steps.add_row(step.level, "its own fit", "", "", "", verdict)
+            steps.add_row(label, "its own fit", "", "", "", "", verdict)
+    for t in (table, steps):
+        t.columns[0].no_wrap = True
     console.print(table)
-    table = steps
-    console.print(table)
+    console.print(steps)
     if any(step.conditional for step in result.steps):
         console.print("* tested after a step that did not hold: the comparison is between models already rejected.")
     if adjusted:
         console.print("Ordinal items: chi-square, CFI and RMSEA come from the scale-shifted adjusted statistic, and each "
-                      "difference test is adjusted in the same way (Asparouhov & Muthen 2006).")
-    console.print(f"The configural model holds when it fits by the guide values (CFI >= .95, RMSEA <= .06, SRMR <= .08; Hu & "
-                  f"Bentler 1999); each later step holds when its chi-square difference test has p >= "
-                  f"{unit(result.alpha, 2)}. Common-practice guides: change in CFI no lower than -.01 (Cheung & Rensvold "
-                  f"2002), change in RMSEA below .015 (Chen 2007). All guides are conventions, not laws.")
+                      "difference test is adjusted in the same way (Asparouhov & Muthen 2006). The adjusted statistic's "
+                      "scale and shift are estimated anew for each model, so it can fall when constraints are added: "
+                      "compare steps by the difference tests, not by the statistics or indices of the levels.")
+    console.print("The configural model holds when it fits by the guide values (CFI >= .95, RMSEA <= .06, SRMR <= .08; Hu & "
+                  "Bentler 1999). Change-in-fit guides are common practice: CFI falling by no more than .010 (Cheung & "
+                  "Rensvold 2002), RMSEA rising by less than .015, SRMR by less than .030 for loadings and .010 after "
+                  "(Chen 2007). All guides are conventions, not laws.")
     if result.freed:
+        many = len(result.groups) > 2
         freed = _table("Parameters freed by the partial-invariance search",
-                       [("Level", "left"), ("Parameter", "left"), ("Score test", "right")])
+                       [("Level", "left"), ("Parameter", "left")] + ([("Group", "left")] if many else [])
+                       + [("Score test", "right")])
         for f in result.freed:
-            freed.add_row(f.level, f"{f.kind.replace('_', ' ')} {', '.join(f.variables)}", num(f.score, 2))
+            freed.add_row(f.level, f"{f.kind.replace('_', ' ')} {', '.join(f.variables)}",
+                          *([str(f.group)] if many else []), num(f.score, 2))
         console.print(freed)
     for step in result.steps:
+        if step.stopped and step.stopped != "the step holds":
+            console.print(f"The search at the {step.level} step stopped: {step.stopped}.")
         if not step.holds and step.culprits:
             top = step.culprits[:5]
             console.print(f"Likeliest sources of misfit at the {step.level} step (score tests): " + "; ".join(
                 f"{c.kind.replace('_', ' ')} {', '.join(c.variables)} in {c.group} ({c.index:.2f})" for c in top))
+    if result.latent_differences:
+        latent = _table("Latent mean and variance differences", [
+            ("Factor", "left"), ("Group", "left"), ("Mean", "right"), ("SE", "right"), ("95% CI", "right"),
+            ("p", "right"), ("d", "right"), ("Var. ratio", "right")])
+        latent.columns[4].no_wrap = True
+        for d in result.latent_differences:
+            latent.add_row(d.factor, d.group, num(d.mean), num(d.se), f"[{num(d.ci95[0], 2)}, {num(d.ci95[1], 2)}]",
+                           p_value(d.p_value), num(d.standardized, 2), num(d.variance_ratio, 2))
+        console.print(latent)
+    console.print(result.latent_note)
     console.print(Text(HIGH_STAKES_NOTE, style="italic"))
 
 
