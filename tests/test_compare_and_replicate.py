@@ -95,7 +95,7 @@ def test_cli_compare_invariance_replicate_json(tmp_path):
     out = json.loads(proc.stdout)
     assert [s["level"] for s in out["steps"]] == ["configural", "metric", "scalar", "strict"]
     assert set(out["steps"][1]["versus_previous"]) == {"chi_square_difference", "df_difference", "p_value", "method",
-                                                      "delta_cfi", "delta_rmsea"}
+                                                      "delta_cfi", "delta_rmsea", "delta_srmr"}
     assert "freed" in out
 
     proc = run("replicate", str(MODEL), "--data", str(DATA), "--seed", "3", "--json", "-")

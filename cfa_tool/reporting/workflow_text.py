@@ -10,11 +10,6 @@ from cfa_tool.reporting.numbers import num, p_value, unit
 from cfa_tool.reporting.terminal import GUIDE_NOTE, HIGH_STAKES_NOTE, _table
 
 
-def _difference_cells(t) -> list[str]:
-    return [f"{t.chi_square_difference:.3f}", str(t.df_difference), p_value(t.p_value), f"{t.delta_cfi:+.3f}",
-            f"{t.delta_rmsea:+.3f}"]
-
-
 def _admissible_cell(result) -> str:
     if not result.converged:
         return "did not converge"
@@ -32,17 +27,29 @@ def _problem_warnings(named_results, console: Console) -> None:
 
 _COMPARISON_ROWS = ("Admissible", "Free parameters", "Chi-square", "df", "p", "CFI", "TLI", "RMSEA",
                     "  90% interval", "SRMR", "AIC", "BIC")
+_ROBUST_ROWS = ("Scaled chi-square", "  scaling factor", "  p", "Robust CFI", "Robust TLI", "Robust RMSEA",
+                "  90% interval")
 
 
-def _comparison_cells(r) -> list[str]:
+def _comparison_cells(r, robust_rows: bool) -> list[str]:
+    width = len(_COMPARISON_ROWS) + (len(_ROBUST_ROWS) if robust_rows else 0)
     if r.fit is None or not r.converged:
-        return [_admissible_cell(r)] + [""] * (len(_COMPARISON_ROWS) - 1)
+        return [_admissible_cell(r)] + [""] * (width - 1)
     f = r.fit
     low, high = f.rmsea_ci90
     tested = f.df > 0
-    return [_admissible_cell(r), str(f.n_free_parameters), f"{f.chi_square:.3f}", str(f.df), p_value(f.p_value),
-            unit(f.cfi), unit(f.tli), unit(f.rmsea) if tested else "", f"[{unit(low)}, {unit(high)}]" if tested else "",
-            unit(f.srmr), num(f.aic, 1), num(f.bic, 1)]
+    cells = [_admissible_cell(r), str(f.n_free_parameters), f"{f.chi_square:.3f}", str(f.df), p_value(f.p_value),
+             unit(f.cfi), unit(f.tli), unit(f.rmsea) if tested else "", f"[{unit(low)}, {unit(high)}]" if tested else "",
+             unit(f.srmr), num(f.aic, 1), num(f.bic, 1)]
+    if robust_rows:
+        rb = r.robust
+        if rb is None:
+            cells += [""] * len(_ROBUST_ROWS)
+        else:
+            rl, rh = rb.rmsea_robust_ci90
+            cells += [f"{rb.chi_square_scaled:.3f}", num(rb.scaling_factor), p_value(rb.p_value_scaled),
+                      unit(rb.cfi_robust), unit(rb.tli_robust), unit(rb.rmsea_robust), f"[{unit(rl)}, {unit(rh)}]"]
+    return cells
 
 
 def render_comparison(comparison, console: Console) -> None:
@@ -57,8 +64,9 @@ def render_comparison(comparison, console: Console) -> None:
                   f"answer on any model's variables left out).")
     # one column per model, one row per index: readable in 80 columns for the usual two to four models
     table = _table("Fit of each model", [("", "left")] + [(name, "right") for name in comparison.names])
-    cells = [_comparison_cells(r) for r in comparison.results]
-    for k, label in enumerate(_COMPARISON_ROWS):
+    robust_rows = any(r.robust is not None for r in comparison.results)
+    cells = [_comparison_cells(r, robust_rows) for r in comparison.results]
+    for k, label in enumerate(_COMPARISON_ROWS + (_ROBUST_ROWS if robust_rows else ())):
         table.add_row(label, *[c[k] for c in cells], style="bold" if k == 0 else None)
     console.print(table)
     fitted = [(name, r) for name, r in zip(comparison.names, comparison.results) if r.converged and r.fit is not None]
@@ -73,13 +81,25 @@ def render_comparison(comparison, console: Console) -> None:
     for name, indices in lowest.items():
         console.print(Text(f"The lowest {' and '.join(indices)} belong{'s' if len(indices) == 1 else ''} to {name}, whose "
                            f"solution is not admissible: that is no reason to prefer it.", style="bold"))
-    if comparison.tests:
-        tests = _table("Nested models: chi-square difference tests",
-                       [("Restricted", "left"), ("General", "left"), ("Test", "left"), ("Difference", "right"),
-                        ("df", "right"), ("p", "right"), ("CFI change", "right"), ("RMSEA change", "right")])
-        for t in comparison.tests:
-            tests.add_row(t.restricted, t.general, t.method, *_difference_cells(t))
+    pairs: dict[tuple[str, str], list] = {}
+    for t in comparison.tests:
+        pairs.setdefault((t.restricted, t.general), []).append(t)
+    for (restricted, general), found in pairs.items():  # one small table per nested pair: readable in 80 columns
+        tests = _table(f"{restricted} (restricted) against {general}: difference tests",
+                       [("Test", "left"), ("Difference (df)", "right"), ("p", "right"), ("\u0394CFI", "right"),
+                        ("\u0394RMSEA", "right")])
+        for t in found:
+            if t.not_computed:
+                tests.add_row(t.method, f"not computed ({t.df_difference})", "", "", "")
+            else:
+                tests.add_row(t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})", p_value(t.p_value),
+                              f"{t.delta_cfi:+.3f}", f"{t.delta_rmsea:+.3f}")
+        for column in tests.columns[1:]:
+            column.no_wrap = True
         console.print(tests)
+        for t in found:
+            if t.not_computed:
+                console.print(f"{t.method}: not computed: {t.not_computed}.")
     for n in comparison.not_nested:
         advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
         console.print(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
