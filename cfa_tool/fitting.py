@@ -317,7 +317,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 implied_mean=mats[g].implied_mean() if means else None,
                 normality=mardia(gm.rows) if options.diagnostics and gm.rows is not None else None,
                 **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics,
-                                     spec.reverse_keyed or None),
+                                     spec.reverse_keyed or None, spec.method_factors),
             )
         )
     for g, result in enumerate(group_results):
@@ -386,12 +386,13 @@ def estimate_rows(table: ParameterTable, values: np.ndarray, inference, std_all:
 
 
 def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool,
-                       declared: dict[str, tuple[float, float]] | None) -> dict:
+                       declared: dict[str, tuple[float, float]] | None, not_traits: frozenset[str] = frozenset()) -> dict:
     """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often);
     ``declared``: the reverse-keyed items of a 'reversed' statement, if any."""
     if not wanted:
         return {}
-    factors, htmt = reliability(mats, table.observed, table.latent, gm.covariance, gm.mean, declared, gm.n_obs)
+    factors, htmt = reliability(mats, table.observed, table.latent, gm.covariance, gm.mean, declared, gm.n_obs,
+                                not_traits=not_traits)
     out = {"reliability": tuple(factors), "htmt": tuple(htmt),
            "normalized_residuals": normalized_residuals(gm.covariance, sigma, gm.n_obs)}
     if gm.rows is not None and not np.isnan(gm.rows).any():

@@ -180,7 +180,7 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
                         if par.kind == "residual_variance" and par.variables[0] in derived_items)
     estimates = estimate_rows(table, values, inference, std_all, std_lv, derived)
     factors, htmt = reliability(final, table.observed, table.latent, R, declared=spec.reverse_keyed or None,
-                                sum_scores=False)
+                                sum_scores=False, not_traits=spec.method_factors)
     if opt.converged:
         warnings.extend(keying_warnings(factors))
     summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
@@ -382,7 +382,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         summary = DataSummary(mg.source, mg.rows_read, mg.rows_dropped, mg.n_obs, table.observed,
                               tuple(float(v) for v in mg.means), tuple(float(v) for v in mg.sds))
         factors, htmt = reliability(mats[g], table.observed, table.latent, mg.correlations,
-                                    declared=spec.reverse_keyed or None, sum_scores=False)
+                                    declared=spec.reverse_keyed or None, sum_scores=False, not_traits=spec.method_factors)
         if est.converged:
             warnings.extend(keying_warnings(factors, f"group {lab}: "))
         group_results.append(GroupResult(lab, summary, shares[g], srmrs[g],

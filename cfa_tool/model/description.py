@@ -43,6 +43,7 @@ class ModelDescription:
     ordinal: tuple[str, ...]
     invariant: tuple[str, ...]  # classes held equal across groups
     noninvariant: tuple[tuple, ...]  # parameters exempted
+    method_factors: tuple[str, ...] = ()  # factors of a method of measurement, not traits
 
     def to_dict(self) -> dict:
         return {
@@ -61,6 +62,7 @@ class ModelDescription:
             "ordinal_items": list(self.ordinal),
             "invariant": list(self.invariant),
             "noninvariant": [_ref_dict(r) for r in self.noninvariant],
+            "method_factors": list(self.method_factors),
         }
 
 
@@ -108,6 +110,7 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
         ordinal=tuple(n.text for n in spec.ordinal),
         invariant=tuple(spec.invariant),
         noninvariant=tuple(_ref(r) for r in spec.noninvariant),
+        method_factors=tuple(n.text for n in spec.method),
     )
 
 

@@ -57,12 +57,18 @@ def _test_phrase(method: str) -> str:
 
 
 def _structure(result, d) -> str:
-    n_first = len(d.first_order)
+    methods = set(d.method_factors)
+    traits = [f for f in d.first_order if f not in methods]
+    n_first = len(traits)
+    noun = "trait factor" if methods else "factor"
     if n_first == 1:
-        factors = f"one factor ({d.first_order[0]})"
+        factors = f"one {noun} ({traits[0]})"
     else:
-        kind = "correlated factors" if d.correlated_factors else "factors"
-        factors = f"{_count(n_first, kind[:-1], kind)} ({_list(d.first_order)})"
+        kind = f"correlated {noun}s" if d.correlated_factors else f"{noun}s"
+        factors = f"{_count(n_first, kind[:-1], kind)} ({_list(traits)})"
+    if methods:
+        named = [f for f in d.first_order if f in methods]
+        factors += f" and {_count(len(named), 'method factor')} ({_list(named)})"
     text = f"{_count(len(d.indicators), 'indicator')} of {factors}"
     for higher, lower in d.higher_order:
         text += f", with a higher-order factor ({higher}) explaining {_list(lower)},"
@@ -114,8 +120,10 @@ def _scale_sentence(d) -> str:
 
 def _departures(d) -> str:
     parts = []
+    methods = set(d.method_factors)
     for item, factors in d.cross_loadings:
-        parts.append(f"a cross-loading of {item} (on {_list(list(factors))})")
+        if sum(f not in methods for f in factors) > 1:  # a loading on a method factor is not a cross-loading
+            parts.append(f"a cross-loading of {item} (on {_list(list(factors))})")
     if d.residual_covariances:
         n = len(d.residual_covariances)
         parts.append(f"{_count(n, 'residual covariance')} ({_list([_pair(p) for p in d.residual_covariances])})")
@@ -125,6 +133,11 @@ def _departures(d) -> str:
     sentences = []
     if parts:
         sentences.append(f"The model also included {_list(parts)}.")
+    if d.method_factors:
+        many = len(d.method_factors) > 1
+        sentences.append(f"The {'factors' if many else 'factor'} {_list(list(d.method_factors))} "
+                         f"{'stand' if many else 'stands'} for a way of answering, not a trait: "
+                         f"{'they get' if many else 'it gets'} no reliability or discriminant-validity coefficients.")
     if d.uncorrelated:
         pairs = _list([f"{a} and {b}" for a, b in d.uncorrelated])
         sentences.append(f"The covariance{'s' if len(d.uncorrelated) > 1 else ''} of {pairs} "

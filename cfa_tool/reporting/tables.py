@@ -258,6 +258,10 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
             "hierarchical); omega total: due to all factors; CR: composite reliability; AVE: average variance extracted; "
             "'sqrt(AVE) > r': the Fornell-Larcker comparison with every other factor; alpha from the sample covariances "
             "of the keyed items.")
+    methods = result.description.method_factors if result.description is not None else ()
+    if methods:
+        note += (f" Method factors ({', '.join(methods)}) stand for a way of answering, not a trait: they get no "
+                 f"coefficients and take no part in the Fornell-Larcker and HTMT comparisons.")
     return _table(f"reliability_{group}", "Reliability and validity" + (" (ordinal)" if ordinal else ""),
                   [("Factor", "l"), ("Items", "r"), ("Omega", "r"), ("Omega total", "r"), ("CR", "r"), ("AVE", "r"),
                    ("sqrt(AVE) > r", "l"), ("Alpha", "r")], body, note)
@@ -294,8 +298,11 @@ def htmt_table(result, group: int = 0) -> ReportTable | None:
     pairs = result.groups[group].htmt
     if not pairs:
         return None
-    return _table(f"htmt_{group}", "Heterotrait-monotrait ratios",
-                  [("Factor", "l"), ("Factor", "l"), ("HTMT", "r")], [[h.first, h.second, unit(h.ratio, 2)] for h in pairs],
+    missing_any = any(h.ratio is None for h in pairs)
+    columns = [("Factor", "l"), ("Factor", "l"), ("HTMT", "r")] + ([("Why not defined", "l")] if missing_any else [])
+    rows = [[h.first, h.second, "" if h.ratio is None else unit(h.ratio, 2)] + ([h.why_missing] if missing_any else [])
+            for h in pairs]
+    return _table(f"htmt_{group}", "Heterotrait-monotrait ratios", columns, rows,
                   "Henseler, Ringle & Sarstedt (2015), on the keyed items, in absolute value. Common practice reads "
                   "values above .85 (or .90) as a sign that two factors are not distinct.")
 
