@@ -44,3 +44,16 @@ def test_a_scaled_difference_that_cannot_be_computed_says_why():
     assert first.to_dict()["not_computed"] == first.not_computed
     # the 2010 version with c1 = 1.1: c_d = (10 - 8.8) / 2 = .6, T_d = 10 / .6
     assert second.not_computed == "" and second.chi_square_difference == pytest.approx(10 / 0.6)
+
+
+def test_standardized_expected_change_of_a_residual_covariance_is_a_residual_correlation(hs_data):
+    import cfa_tool
+    from cfa_tool.reporting import tables as T
+
+    result = cfa_tool.fit(THREE, hs_data)
+    theta = {r.variables[0]: r.estimate for r in result.estimates if r.kind == "residual_variance"}
+    m = next(m for m in result.modification_indices if m.kind == "residual_covariance" and m.variables == ("x7", "x8"))
+    # the expected change over the two residual standard deviations (correlation metric)
+    assert m.standardized_expected_change == pytest.approx(m.expected_change / (theta["x7"] * theta["x8"]) ** 0.5,
+                                                           rel=1e-12)
+    assert "residual correlation metric" in T.modification_table(result).note

@@ -238,8 +238,15 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
         where = f" in {m.group}" if m.group is not None else ""
         body.append([f"{m.kind.replace('_', ' ')} {', '.join(m.variables)}{where}", num(m.index, 2), num(m.expected_change),
                      num(m.standardized_expected_change)])
+    note = ("Standardized: for loadings on the fully standardized metric; for residual covariances on the residual "
+            "correlation metric (the expected change over the two residual standard deviations).")
+    beyond = [m for m in shown if m.kind == "residual_covariance" and abs(m.standardized_expected_change) > 1]
+    if beyond:
+        note += (f" {len(beyond)} expected residual correlation{'s are' if len(beyond) > 1 else ' is'} beyond +/-1: the "
+                 "expected change is a linear approximation that fails this far from the current estimate, so only a "
+                 "refit shows the value the parameter would take.")
     return _table("modification", title, [("Parameter that could be freed", "l"), ("Index", "r"), ("Expected change", "r"),
-                                          ("Standardized", "r")], body)
+                                          ("Standardized", "r")], body, note)
 
 
 def reliability_table(result, group: int = 0) -> ReportTable | None:
