@@ -112,6 +112,8 @@ def build_parser() -> argparse.ArgumentParser:
     mc.add_argument("--n", type=int, required=True, help="sample size of each simulated data set")
     mc.add_argument("--replications", type=int, default=500, help="number of data sets (default 500)")
     mc.add_argument("--alpha", type=float, default=0.05, help="significance level (default .05)")
+    mc.add_argument("--population-from", metavar="RESULT", help="take the population values from an earlier fit of "
+                    "this model (the file written by 'fit --json')")
     _add_run_options(mc)
 
     sim = sub.add_parser("simulate", help="write data simulated from a model with population values")
@@ -121,6 +123,8 @@ def build_parser() -> argparse.ArgumentParser:
     sim.add_argument("--seed", type=int, default=1, help="random seed (default 1)")
     sim.add_argument("--categories", type=int, help="make ordinal items with this many categories")
     sim.add_argument("--missing", type=float, default=0.0, help="share of answers removed completely at random")
+    sim.add_argument("--population-from", metavar="RESULT", help="take the population values from an earlier fit of "
+                     "this model (the file written by 'fit --json')")
     _add_json_option(sim)
 
     _add_resampling_command(sub, "cutoffs", "fit-index cutoffs simulated for this model and sample size", 200,
@@ -367,7 +371,8 @@ def _simulation_command(args: argparse.Namespace) -> int:
 
         from cfa_tool.output_files import write_file
 
-        simulated = simulate(read_model_file(args.model), args.n, args.seed, args.categories, args.missing)
+        simulated = simulate(read_model_file(args.model), args.n, args.seed, args.categories, args.missing,
+                             args.population_from)
         frame = simulated.frame
         if not args._stdout_taken:
             W.render_population(simulated, _console())
@@ -386,7 +391,7 @@ def _simulation_command(args: argparse.Namespace) -> int:
             from cfa_tool.workflows.montecarlo import monte_carlo_power
 
             result = monte_carlo_power(read_model_file(args.model), args.n, args.replications, args.seed, args.alpha,
-                                       args.workers, args.cluster, advance)
+                                       args.workers, args.cluster, advance, args.population_from)
             render = W.render_montecarlo
         elif args.command == "bootstrap":
             from cfa_tool.api import bootstrap
@@ -457,7 +462,8 @@ DIAGRAM_SUFFIXES = (".svg", ".png")
 def _inputs(args: argparse.Namespace) -> list[str]:
     """Every file the command reads: models, data, calibration and validation files."""
     names = [getattr(args, "model", None), *(getattr(args, "models", None) or ()),
-             getattr(args, "data", None), getattr(args, "calibration", None), getattr(args, "validation", None)]
+             getattr(args, "data", None), getattr(args, "calibration", None), getattr(args, "validation", None),
+             getattr(args, "population_from", None)]
     return [n for n in names if n]
 
 

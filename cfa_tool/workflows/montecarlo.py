@@ -60,7 +60,8 @@ def _replicate(task) -> tuple[bool, np.ndarray, np.ndarray]:
 
 
 def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int = 1, alpha: float = 0.05,
-                      workers: int | None = None, cluster: str | None = None, progress=None) -> MonteCarloPower:
+                      workers: int | None = None, cluster: str | None = None, progress=None,
+                      population=None) -> MonteCarloPower:
     from cfa_tool.api import continuous_only, load_spec
 
     spec = continuous_only(load_spec(spec), "power-simulation")
@@ -75,7 +76,7 @@ def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int
     if n_obs * p > check.MAX_SIMULATED_CELLS:
         raise OptionError(f"{n_obs:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values per "
                           f"simulated data set; plan with a smaller sample size")
-    population = population_from_spec(spec)
+    population = population_from_spec(spec, population)
     table = population.table
     seeds = np.random.SeedSequence(seed).generate_state(replications)
     tasks = [(spec, population.sigma, population.observed, n_obs, int(s), population.theta) for s in seeds]
