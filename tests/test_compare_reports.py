@@ -57,3 +57,17 @@ def test_standardized_expected_change_of_a_residual_covariance_is_a_residual_cor
     assert m.standardized_expected_change == pytest.approx(m.expected_change / (theta["x7"] * theta["x8"]) ** 0.5,
                                                            rel=1e-12)
     assert "residual correlation metric" in T.modification_table(result).note
+
+
+def test_ordinal_comparison_counts_free_parameters_as_fit_does():
+    import cfa_tool
+    from cfa_tool.workflows.simulation import simulate
+
+    two = "factor a: y1, y2, y3, y4\nfactor b: y5, y6, y7, y8\n"
+    one = "factor a: y1, y2, y3, y4, y5, y6, y7, y8\n"
+    data = simulate(two, 800, seed=3, categories=4).frame
+    comparison = compare([one, two], data, ordinal="all")
+    for model, result in zip((one, two), comparison.results):
+        alone = cfa_tool.fit(model, data, ordinal="all")
+        assert result.fit.n_free_parameters == alone.fit.n_free_parameters
+        assert result.fit.df == alone.fit.df
