@@ -189,7 +189,10 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
     _add_json_option(p)
     p.add_argument("--html", metavar="PATH", help="write a self-contained HTML report (tables, path diagram, methods paragraph)")
     p.add_argument("--markdown", metavar="PATH", help="write the report as Markdown")
+    p.add_argument("--docx", metavar="PATH", help="write the report as a Word document for a manuscript (numbered "
+                   "tables, methods paragraph, path diagram)")
     p.add_argument("--diagram", metavar="PATH", help="write the path diagram as SVG (or PNG when PATH ends in .png and a converter is installed)")
+    p.add_argument("--dpi", type=int, default=300, help="resolution of pictures (PNG diagram, Word figure; default 300)")
     p.add_argument("--tables", metavar="FOLDER", help="write every table as CSV and as LaTeX (booktabs) into FOLDER")
     p.add_argument("--information", choices=("expected", "observed"), default=None,
                    help="information matrix for standard errors (default: expected; full-information ML uses observed)")
@@ -454,8 +457,8 @@ def _ordinal_arg(text: str | None):
     return "all" if text.strip() == "all" else [t.strip() for t in text.split(",") if t.strip()]
 
 
-REPORT_FILES = (("--json", "json"), ("--html", "html"), ("--markdown", "markdown"), ("--diagram", "diagram"),
-                ("--output", "output"))
+REPORT_FILES = (("--json", "json"), ("--html", "html"), ("--markdown", "markdown"), ("--docx", "docx"),
+                ("--diagram", "diagram"), ("--output", "output"))
 DIAGRAM_SUFFIXES = (".svg", ".png")
 
 
@@ -470,6 +473,7 @@ def _inputs(args: argparse.Namespace) -> list[str]:
 def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     """Every output of the run checked before any work (see cfa_tool.output_files)."""
     from cfa_tool.output_files import check_outputs
+    from cfa_tool.reporting.picture import png_converter, require_png_converter
 
     diagram = getattr(args, "diagram", None)
     if diagram and diagram != "-" and Path(diagram).suffix.lower() not in DIAGRAM_SUFFIXES:
@@ -481,7 +485,15 @@ def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     outputs = [(option, getattr(args, attr, None)) for option, attr in REPORT_FILES]
     targets = check_outputs(outputs, inputs, [("--tables", getattr(args, "tables", None))])
     if diagram and diagram.lower().endswith(".png"):
-        _png_converter()
+        require_png_converter()
+    if getattr(args, "dpi", None) is not None:
+        from cfa_tool import options as check
+
+        args.dpi = check.whole_number("--dpi", args.dpi, 72, 1200)
+    if getattr(args, "docx", None) and png_converter() is None:  # said before the work, not after
+        from cfa_tool.reporting.docx_report import NO_PICTURE
+
+        print(f"cfa-tool: note: {NO_PICTURE}", file=sys.stderr)
     args._targets = targets
     args._stdout_taken = any(t.is_stdout for t in targets.values())
     return targets
@@ -495,6 +507,7 @@ def _say(args: argparse.Namespace, text: str) -> None:
 
 def _report_files(args: argparse.Namespace, result) -> list[tuple[str, object, str]]:
     """(option, content, message) of every report file asked for, made before anything is written."""
+    from cfa_tool.reporting.picture import svg_to_png
     files: list[tuple[str, object, str]] = []
     if getattr(args, "json", None):
         from cfa_tool.reporting.json_report import to_json
@@ -508,11 +521,15 @@ def _report_files(args: argparse.Namespace, result) -> list[tuple[str, object, s
         from cfa_tool.reporting.text_formats import markdown_report
 
         files.append(("--markdown", markdown_report(result), f"Markdown report written to {args.markdown}"))
+    if getattr(args, "docx", None):
+        from cfa_tool.reporting.docx_report import docx_report
+
+        files.append(("--docx", docx_report(result, args.dpi), f"Word report written to {args.docx}"))
     if getattr(args, "diagram", None):
         from cfa_tool.reporting.diagram import path_diagram
 
         svg = path_diagram(result)
-        content = _png_bytes(svg) if args.diagram.lower().endswith(".png") else svg
+        content = svg_to_png(svg, args.dpi) if args.diagram.lower().endswith(".png") else svg
         files.append(("--diagram", content, f"Path diagram written to {args.diagram}"))
     return files
 
@@ -527,29 +544,6 @@ def _table_files(args: argparse.Namespace, result) -> dict[str, str]:
         files[f"{table.key}.csv"] = csv_table(table)
         files[f"{table.key}.tex"] = latex_table(table)
     return files
-
-
-def _png_converter() -> str:
-    import shutil
-
-    converter = shutil.which("rsvg-convert")
-    if converter is None:
-        raise OptionError("writing PNG needs the rsvg-convert program (Debian package librsvg2-bin); write .svg instead")
-    return converter
-
-
-def _png_bytes(svg: str) -> bytes:
-    import subprocess
-    import tempfile
-
-    with tempfile.TemporaryDirectory() as tmp:
-        source = Path(tmp) / "diagram.svg"
-        source.write_text(svg, encoding="utf-8")
-        out = Path(tmp) / "diagram.png"
-        done = subprocess.run([_png_converter(), "-o", str(out), str(source)], capture_output=True, text=True)
-        if done.returncode != 0 or not out.exists():
-            raise OptionError(f"the SVG-to-PNG converter failed: {done.stderr.strip()[:200]}")
-        return out.read_bytes()
 
 
 def _emit(args: argparse.Namespace, result, render) -> int:
