@@ -12,6 +12,7 @@ from functools import lru_cache
 import numpy as np
 
 from cfa_tool.assessment.admissibility import solution_problems
+from cfa_tool.data.descriptives import item_shape
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, normalized_residuals
 from cfa_tool.assessment.fit_indices import fit_indices, srmr_value
@@ -402,8 +403,13 @@ def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: n
 
 
 def _summary(m: SampleMoments, observed: tuple[str, ...], gm: GroupMoments) -> DataSummary:
+    rows = gm.rows if gm.rows is not None else m.rows  # with gaps: the rows of the sample moments, in their order
+    if rows is not None and rows is m.rows and tuple(m.names) != tuple(observed):
+        rows = rows[:, [m.names.index(x) for x in observed]]
+    shape = item_shape(rows) if rows is not None else None
     return DataSummary(m.source, m.rows_read, m.rows_dropped, m.n_obs, observed,
-                       tuple(float(v) for v in gm.mean), tuple(float(v) for v in np.sqrt(np.diag(gm.covariance))))
+                       tuple(float(v) for v in gm.mean), tuple(float(v) for v in np.sqrt(np.diag(gm.covariance))),
+                       *((shape.answered, shape.skewness, shape.kurtosis) if shape is not None else ()))
 
 
 @dataclass(frozen=True)

@@ -106,19 +106,23 @@ class DataSummary:
     variables: tuple[str, ...]
     means: tuple[float, ...]
     sds: tuple[float, ...]
+    answered: tuple[int, ...] = ()  # rows answering each item (empty when the raw rows are not at hand)
+    skewness: tuple[float, ...] = ()
+    kurtosis: tuple[float, ...] = ()  # excess kurtosis
 
     def to_dict(self) -> dict:
-        return clean(
-            {
-                "source": self.source,
-                "rows_read": self.rows_read,
-                "rows_dropped": self.rows_dropped,
-                "n_obs": self.n_obs,
-                "variables": list(self.variables),
-                "means": list(self.means),
-                "sds": list(self.sds),
-            }
-        )
+        out = {
+            "source": self.source,
+            "rows_read": self.rows_read,
+            "rows_dropped": self.rows_dropped,
+            "n_obs": self.n_obs,
+            "variables": list(self.variables),
+            "means": list(self.means),
+            "sds": list(self.sds),
+        }
+        if self.skewness:
+            out.update(answered=list(self.answered), skewness=list(self.skewness), excess_kurtosis=list(self.kurtosis))
+        return clean(out)
 
 
 @dataclass(frozen=True, eq=False)

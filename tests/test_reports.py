@@ -51,7 +51,7 @@ def test_html_report_has_every_section_and_no_external_assets(demo_result):
     page = html_report(demo_result)
     f = demo_result.fit
     for words in ("Summary for a paper", "Path diagram", "Model fit", "Loadings", "Factor covariances", "Residual correlations",
-                  "Largest modification indices", "Items (analysed rows)", "not laws", "licensed professional",
+                  "Largest modification indices", "Items: descriptive statistics (analysed rows)", "Correlations of the items", "not laws", "licensed professional",
                   f"\u03c7\u00b2({f.df}) = {f.chi_square:.2f}"):
         assert words in page, words
     assert "<script" not in page

@@ -134,6 +134,10 @@ def html_report(result) -> str:
                         "a model changed that way needs confirmation in new data.</p>")
     sections.append("<h2>Data</h2>")
     sections.append(table_html(T.item_table(result)))
+    for g in range(len(result.groups)):
+        correlations = T.correlation_table(result, g)
+        if correlations is not None:
+            sections.append(table_html(correlations))
     missing = T.missing_table(result)
     if missing is not None:
         sections.append(table_html(missing))

@@ -5,6 +5,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import numpy as np
+
 from cfa_tool.assessment.reliability import Keying
 from cfa_tool.reporting.numbers import missing, num, p_value, unit
 
@@ -327,23 +329,61 @@ def case_table(result, group: int = 0) -> ReportTable | None:
 
 
 def item_table(result) -> ReportTable:
-    d = result.data
+    """The descriptives table: per item the rows answering it, mean, SD, skewness, excess kurtosis and, with
+    raw rows, its factor, keying and corrected item-total correlation."""
+    d = result.data if result.multigroup else result.groups[0].data
     rest: dict[str, tuple[str, float, bool]] = {}  # item -> (factor, corrected item-total r, reversed)
     if not result.multigroup:
         for r in result.groups[0].reliability:
             for item, value in zip(r.items, r.item_total):
                 rest.setdefault(item, (r.factor, value, item in r.reversed))
-    if not rest:
-        return _table("items", "Items (analysed rows)", [("Item", "l"), ("Mean", "r"), ("SD", "r")],
-                      [[name, num(m, 2), num(s, 2)] for name, m, s in zip(d.variables, d.means, d.sds)])
-    body = []
-    for name, m, s in zip(d.variables, d.means, d.sds):
-        factor, value, flipped = rest.get(name, ("", float("nan"), False))
-        body.append([name, num(m, 2), num(s, 2), factor, "reversed" if flipped else "", unit(value, 2)])
-    return _table("items", "Items (analysed rows)",
-                  [("Item", "l"), ("Mean", "r"), ("SD", "r"), ("Factor", "l"), ("Keying", "l"), ("Item-rest r", "r")],
-                  body, "Item-rest r: the correlation of the (keyed) item with the keyed sum of the other items of its "
-                        "factor (corrected item-total correlation).")
+    shape = bool(d.skewness)
+    # SDs with divisor N - 1, as descriptive tables report them (the model uses divisor N)
+    stretch = (d.n_obs / (d.n_obs - 1)) ** 0.5 if d.n_obs > 1 else 1.0
+    columns = [("Item", "l")] + ([("N", "r")] if shape else []) + [("Mean", "r"), ("SD", "r")]
+    columns += [("Skewness", "r"), ("Excess kurtosis", "r")] if shape else []
+    columns += [("Factor", "l"), ("Keying", "l"), ("Item-rest r", "r")] if rest else []
+    body, values = [], []
+    for k, (name, m, s) in enumerate(zip(d.variables, d.means, d.sds)):
+        row = [name] + ([str(d.answered[k])] if shape else []) + [num(m, 2), num(s * stretch, 2)]
+        numbers = [name] + ([d.answered[k]] if shape else []) + [m, s * stretch]
+        if shape:
+            row += [num(d.skewness[k], 2), num(d.kurtosis[k], 2)]
+            numbers += [d.skewness[k], d.kurtosis[k]]
+        if rest:
+            factor, value, flipped = rest.get(name, ("", float("nan"), False))
+            row += [factor, "reversed" if flipped else "", unit(value, 2)]
+            numbers += [factor, "reversed" if flipped else "", value]
+        body.append(row)
+        values.append(numbers)
+    note = "SD with divisor N - 1."
+    if shape:
+        note += (" Skewness g1 and excess kurtosis g2 (moment estimators; 0 for a normal distribution), each from "
+                 "the rows answering the item.")
+    if rest:
+        note += (" Item-rest r: the correlation of the (keyed) item with the keyed sum of the other items of its "
+                 "factor (corrected item-total correlation).")
+    return _table("items", "Items: descriptive statistics (analysed rows)", columns, body, note,
+                  values=([c for c, _ in columns], values))
+
+
+def correlation_table(result, group: int = 0) -> ReportTable | None:
+    """The items' sample correlations (lower triangle), with the number of rows they come from."""
+    names = result.observed
+    if len(names) > MAX_RESIDUAL_MATRIX or len(names) < 2:
+        return None
+    g = result.groups[group]
+    S = g.sample_covariance
+    sd = np.sqrt(np.clip(np.diag(S), 1e-300, None))
+    r = S / np.outer(sd, sd)
+    rows = [[f"{i + 1} {name}"] + [unit(r[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
+            for i, name in enumerate(names) if i > 0]
+    where = f" in group {g.label}" if g.label is not None else ""
+    return _table(f"correlations_{group}", f"Correlations of the items{where} (N = {g.data.n_obs})",
+                  [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows,
+                  "For ordinal items: polychoric (and polyserial) correlations. With full-information estimation: "
+                  "the saturated model's estimates from every answer." if (result.missing_data or
+                                                                           "polychoric" in result.estimator) else None)
 
 
 def normality_lines(result) -> list[str]:

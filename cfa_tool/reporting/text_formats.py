@@ -28,6 +28,10 @@ def all_tables(result) -> list[ReportTable]:
     for extra in (T.modification_table(result), T.item_table(result), T.missing_table(result)):
         if extra is not None:
             out.append(extra)
+    for g in range(len(result.groups)):
+        correlations = T.correlation_table(result, g)
+        if correlations is not None:
+            out.append(correlations)
     return out
 
 
