@@ -222,11 +222,16 @@ def missing_table(result) -> ReportTable | None:
     summary = result.missing_data
     if not summary:
         return None
-    rows = [[p["pattern"], str(p["rows"])] for p in summary["patterns"][:8]]
+    def named(items: list[str]) -> str:
+        if not items:
+            return "(none: complete rows)"
+        return ", ".join(items[:6]) + (f" and {len(items) - 6} more" if len(items) > 6 else "")
+
+    rows = [[named(p["not_answered"]), str(p["rows"])] for p in summary["patterns"][:8]]
     low = sorted(summary["coverage"].items(), key=lambda kv: kv[1])[:5]
     note = f"{summary['n_patterns']} patterns. Lowest coverage: " + ", ".join(f"{name} {100 * share:.1f}%" for name, share in low)
     return _table("missing", "Missing answers",
-                  [("Pattern of answers (x) and gaps (.), items in model order", "l"), ("Rows", "r")], rows, note)
+                  [("Items not answered", "l"), ("Rows", "r")], rows, note)
 
 
 def modification_table(result, limit: int = 10) -> ReportTable | None:
