@@ -262,6 +262,10 @@ def render_population(simulated, console: Console) -> None:
     console.print(table)
 
 
+def _percent(share: float) -> str:
+    return "" if share != share else f"{100 * share:+.1f}"
+
+
 def render_montecarlo(result, console: Console) -> None:
     console.print(Text(f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
                        style="bold underline"))
@@ -269,13 +273,18 @@ def render_montecarlo(result, console: Console) -> None:
                   f"({100 * result.converged / result.replications:.1f}%).")
     if result.defaulted:
         console.print("Population values not given in the model file took defaults: " + ", ".join(result.defaulted))
-    table = _table("Per parameter", [("Parameter", "left"), ("Population", "right"), ("Mean estimate", "right"),
-                                     ("Relative bias", "right"), ("SD of estimates", "right"), ("Mean SE", "right"),
-                                     ("95% coverage", "right"), ("Power", "right")])
+    # what decides the plan first: power, then whether intervals and estimates can be trusted at this N
+    table = _table("Per parameter", [("Parameter", "left"), ("Power", "right"), ("Intervals covering the truth", "right"),
+                                     ("Estimate bias %", "right"), ("SE bias %", "right")])
     for p in result.parameters:
-        table.add_row(p.label, num(p.population), num(p.mean_estimate), num(p.relative_bias), num(p.sd_estimate),
-                      num(p.mean_se), num(p.coverage), num(p.power))
+        table.add_row(p.label, unit(p.power, 2), f"{100 * p.coverage:.1f}%", _percent(p.relative_bias),
+                      _percent(p.se_bias))
+    table.columns[0].no_wrap = True
     console.print(table)
+    console.print(f"Power: share of replications in which the parameter differs from zero at alpha {unit(result.alpha, 2)}; "
+                  f"intervals: 95% Wald intervals (nominal 95%); bias: mean estimate (or mean SE) against the population "
+                  f"value (or the SD of the estimates). Population values, mean estimates and SDs are in the JSON "
+                  f"(--json).")
 
 
 def render_cutoffs(pair, console: Console) -> None:

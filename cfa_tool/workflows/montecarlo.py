@@ -32,8 +32,13 @@ class ParameterPower:
     coverage: float
     power: float
 
+    @property
+    def se_bias(self) -> float:
+        """Relative bias of the standard errors: (mean SE - SD of the estimates) / SD of the estimates."""
+        return (self.mean_se - self.sd_estimate) / self.sd_estimate if self.sd_estimate > 0 else float("nan")
+
     def to_dict(self) -> dict:
-        return dict(self.__dict__)
+        return {**self.__dict__, "se_relative_bias": self.se_bias}
 
 
 @dataclass(frozen=True)
