@@ -120,7 +120,7 @@ def html_report(result) -> str:
         if result.multigroup:
             sections.append(f"<h3>Group {esc(group.label)} (N = {group.data.n_obs})</h3>")
         sections.extend(table_html(t) for t in T.estimate_tables(result, g))
-        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.htmt_table(result, g),
+        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.distinct_table(result, g),
                       T.case_table(result, g)):
             if extra is not None:
                 sections.append(table_html(extra))

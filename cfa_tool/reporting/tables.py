@@ -257,28 +257,72 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
 
 
 def reliability_table(result, group: int = 0) -> ReportTable | None:
+    """How reliable are the scale scores: omega (hierarchical for a higher-order factor), omega total, alpha
+    and composite reliability, per factor."""
     rows = result.groups[group].reliability
     if not rows:
         return None
-    body = []
-    for r in rows:
-        fl = "" if r.fornell_larcker_holds is None else ("yes" if r.fornell_larcker_holds else "no")
-        body.append([r.factor, str(len(r.items)), unit(r.omega), unit(r.omega_total), unit(r.composite_reliability),
-                     unit(r.average_variance_extracted), fl, unit(r.alpha)])
+    body = [[r.factor, str(len(r.items)), unit(r.omega), unit(r.omega_total), unit(r.alpha),
+             unit(r.composite_reliability)] for r in rows]
     ordinal = "polychoric" in result.estimator
     note = (("Ordinal versions, on the latent responses behind the items (alpha from the polychoric correlations). "
              if ordinal else "") + keying_sentence(rows) +
             "Omega: share of the keyed item sum's variance due to the factor (for a higher-order factor: omega "
-            "hierarchical); omega total: due to all factors; CR: composite reliability; AVE: average variance extracted; "
-            "'sqrt(AVE) > r': the Fornell-Larcker comparison with every other factor; alpha from the sample covariances "
-            "of the keyed items.")
+            "hierarchical); omega total: due to all factors; alpha from the sample covariances of the keyed items; "
+            "composite reliability from the standardized loadings.")
     methods = result.description.method_factors if result.description is not None else ()
     if methods:
         note += (f" Method factors ({', '.join(methods)}) stand for a way of answering, not a trait: they get no "
                  f"coefficients and take no part in the Fornell-Larcker and HTMT comparisons.")
-    return _table(f"reliability_{group}", "Reliability and validity" + (" (ordinal)" if ordinal else ""),
-                  [("Factor", "l"), ("Items", "r"), ("Omega", "r"), ("Omega total", "r"), ("CR", "r"), ("AVE", "r"),
-                   ("sqrt(AVE) > r", "l"), ("Alpha", "r")], body, note)
+    return _table(f"reliability_{group}", "How reliable are the scale scores?" + (" (ordinal)" if ordinal else ""),
+                  [("Factor", "l"), ("Items", "r"), ("Omega", "r"), ("Omega total", "r"), ("Alpha", "r"),
+                   ("Composite reliability", "r")], body, note)
+
+
+def distinct_table(result, group: int = 0) -> ReportTable | None:
+    """Are the factors distinct: per pair of trait factors their correlation (with its interval when the
+    factors are scaled by their variances), the heterotrait-monotrait ratio and the Fornell-Larcker comparison."""
+    g = result.groups[group]
+    traits = {r.factor: r for r in g.reliability if r.average_variance_extracted is not None}
+    htmt = {(h.first, h.second): h for h in g.htmt}
+    if len(traits) < 2:
+        return None
+    correlations = {}
+    for r in result.estimates:
+        if r.kind == "factor_covariance" and r.group == g.label:
+            correlations[frozenset(r.variables)] = r
+    unit_variance = {r.variables[0] for r in result.estimates
+                     if r.kind == "factor_variance" and r.group == g.label and not r.free and r.estimate == 1.0}
+    body, reasons = [], []
+    names = list(traits)
+    for i, a in enumerate(names):
+        for b in names[i + 1:]:
+            row = correlations.get(frozenset((a, b)))
+            r = row.standardized if row is not None else 0.0
+            interval = ""
+            if row is not None and row.free and {a, b} <= unit_variance:  # the covariance is the correlation
+                interval = f"[{unit(row.ci95[0], 2)}, {unit(row.ci95[1], 2)}]"
+            h = htmt.get((a, b)) or htmt.get((b, a))
+            ratio = "" if h is None or h.ratio is None else unit(h.ratio, 2)
+            if h is not None and h.ratio is None:
+                reasons.append(f"HTMT of {a} and {b}: {h.why_missing}.")
+            ave_a, ave_b = traits[a].average_variance_extracted, traits[b].average_variance_extracted
+            holds = ave_a ** 0.5 > abs(r) and ave_b ** 0.5 > abs(r)
+            body.append([a, b, unit(r, 2), interval, ratio, f"{unit(ave_a, 2)} / {unit(ave_b, 2)}",
+                         "yes" if holds else "no"])
+    note = ("HTMT: heterotrait-monotrait ratio of the keyed items, in absolute value (Henseler, Ringle & Sarstedt "
+            "2015); common practice reads values above .85 (or .90) as a sign that two factors are not distinct. "
+            "sqrt(AVE) > |r|: both factors' average variance extracted exceeds their squared correlation (Fornell & "
+            "Larcker 1981). The interval of a correlation is shown when both factors are scaled by their variances "
+            "(then their covariance is the correlation).")
+    if reasons:
+        note += " " + " ".join(reasons)
+    columns = [("Factor", "l"), ("Factor", "l"), ("r", "r"), ("95% CI", "r"), ("HTMT", "r"), ("AVE", "r"),
+               ("sqrt(AVE) > |r|", "l")]
+    if not any(row[3] for row in body):  # no interval to show (factors scaled by a marker or effects coding)
+        columns.pop(3)
+        body = [row[:3] + row[4:] for row in body]
+    return _table(f"distinct_{group}", "Are the factors distinct?", columns, body, note)
 
 
 def keying_sentence(rows) -> str:
@@ -306,19 +350,6 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
     return _table(f"sum_scores_{group}", "Keyed sum scores",
                   [("Factor", "l"), ("Items", "r"), ("Reversed for scoring", "l"), ("Mean", "r"), ("SD", "r"),
                    ("Lowest item-rest r", "r")], body, note)
-
-
-def htmt_table(result, group: int = 0) -> ReportTable | None:
-    pairs = result.groups[group].htmt
-    if not pairs:
-        return None
-    missing_any = any(h.ratio is None for h in pairs)
-    columns = [("Factor", "l"), ("Factor", "l"), ("HTMT", "r")] + ([("Why not defined", "l")] if missing_any else [])
-    rows = [[h.first, h.second, "" if h.ratio is None else unit(h.ratio, 2)] + ([h.why_missing] if missing_any else [])
-            for h in pairs]
-    return _table(f"htmt_{group}", "Heterotrait-monotrait ratios", columns, rows,
-                  "Henseler, Ringle & Sarstedt (2015), on the keyed items, in absolute value. Common practice reads "
-                  "values above .85 (or .90) as a sign that two factors are not distinct.")
 
 
 def case_table(result, group: int = 0) -> ReportTable | None:

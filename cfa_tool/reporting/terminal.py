@@ -85,7 +85,7 @@ def render(result, console: Console) -> None:
             console.print(Text(f"Group {group.label} (N = {group.data.n_obs})", style="bold reverse"))
         for table in T.estimate_tables(result, g):
             console.print(rich_table(table))
-        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.htmt_table(result, g),
+        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.distinct_table(result, g),
                       T.residual_table(result, g), T.case_table(result, g)):
             if extra is not None:
                 console.print(rich_table(extra))

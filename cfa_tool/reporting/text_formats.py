@@ -21,7 +21,7 @@ def all_tables(result) -> list[ReportTable]:
             out.append(T.group_table(result))
     for g in range(len(result.groups)):
         out.extend(T.estimate_tables(result, g))
-        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.htmt_table(result, g),
+        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.distinct_table(result, g),
                       T.residual_table(result, g), T.case_table(result, g)):
             if extra is not None:
                 out.append(extra)
