@@ -161,7 +161,10 @@ def _check_group_column(spec: Spec, group: str) -> None:
 
 
 def _no_group_notes(no_group: int, group: str) -> list[str]:
-    return [f"{no_group} rows have no value in the group column '{group}' and were left out"] if no_group else []
+    if not no_group:
+        return []
+    return [f"{no_group} {'row has' if no_group == 1 else 'rows have'} no value in the group column '{group}' and "
+            f"{'was' if no_group == 1 else 'were'} left out"]
 
 
 def prepare(model: str | Path | Spec, data: pd.DataFrame | str | Path) -> tuple[Spec, SampleMoments]:

@@ -80,7 +80,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_group_options(inv, required=True)
     inv.add_argument("--partial", choices=("none", "auto"), default="none",
                      help="'auto': when a step fails, free the constraint with the largest score test until it holds")
-    inv.add_argument("--alpha", type=float, default=0.05, help="level of the chi-square difference tests (default .05)")
+    inv.add_argument("--alpha", type=float, default=None, help="level of the chi-square difference tests (default .05)")
     inv.add_argument("--decide-by", choices=tuple(m.value for m in _decision_rules()), default="difference-test",
                      help="how each step is judged: the chi-square difference test (default), the change in CFI, RMSEA "
                           "and SRMR against common-practice guides, or both")
@@ -470,6 +470,17 @@ def _inputs(args: argparse.Namespace) -> list[str]:
     return [n for n in names if n]
 
 
+def _special_file(path: str) -> bool:
+    """A device or a named pipe (written directly, whatever its name)."""
+    import stat
+
+    try:
+        mode = Path(path).stat().st_mode
+    except OSError:
+        return False
+    return stat.S_ISCHR(mode) or stat.S_ISFIFO(mode)
+
+
 def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     """Every output of the run checked before any work (see cfa_tool.output_files)."""
     from cfa_tool.output_files import check_outputs
@@ -479,7 +490,7 @@ def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     if diagram and diagram != "-" and Path(diagram).suffix.lower() not in DIAGRAM_SUFFIXES:
         raise OptionError(f"--diagram: '{diagram}' must end in .svg or .png (the two formats the diagram is written in)")
     output = getattr(args, "output", None)
-    if output and output != "-" and Path(output).suffix.lower() != ".csv":
+    if output and output != "-" and Path(output).suffix.lower() != ".csv" and not _special_file(output):
         raise OptionError(f"--output: the simulated rows are written as CSV; give a file name ending in .csv, not "
                           f"'{printable(output)}'")
     outputs = [(option, getattr(args, attr, None)) for option, attr in REPORT_FILES]
@@ -537,10 +548,12 @@ def _report_files(args: argparse.Namespace, result) -> list[tuple[str, object, s
 def _table_files(args: argparse.Namespace, result) -> dict[str, str]:
     if not getattr(args, "tables", None):
         return {}
+    from cfa_tool.reporting import tables as T
     from cfa_tool.reporting.text_formats import all_tables, csv_table, latex_table
 
     files = {}
-    for table in all_tables(result):
+    problems = T.problem_table(result) if hasattr(result, "problems") else None
+    for table in ([problems] if problems is not None else []) + all_tables(result):
         files[f"{table.key}.csv"] = csv_table(table)
         files[f"{table.key}.tex"] = latex_table(table)
     return files

@@ -334,7 +334,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     warnings = []
     dropped = sum(m.rows_dropped for m in moments)
     if dropped:
-        warnings.append(f"{dropped} rows had a missing answer on a model variable and were left out (listwise deletion)")
+        warnings.append(f"{dropped} {'row' if dropped == 1 else 'rows'} had a missing answer on a model variable and "
+                        f"{'was' if dropped == 1 else 'were'} left out (listwise deletion)")
     fit = robust = inference = None
     modification_rows: list[ModificationIndex] = []
     shares = [None] * G

@@ -121,16 +121,15 @@ def test_markdown_and_json_put_problems_first(heywood):
 
 
 def test_tables_mark_the_affected_rows_in_place(heywood):
-    tables = {t.key: t for t in T.estimate_tables(heywood)}
-    residual = tables["residual_variance"]
-    x9 = [k for k, row in enumerate(residual.rows) if row[0] == "x9"]
-    assert residual.flagged == tuple(x9)
-    assert residual.columns[-1] == "Problem"
-    assert "negative variance" in residual.rows[x9[0]][-1]
-    loading = tables["loading"]
-    marked = [row for k, row in enumerate(loading.rows) if k in loading.flagged]
-    assert len(marked) == 1 and marked[0][1] == "x9" and "R² above 1" in marked[0][-1]
-    assert "negative variance" in csv_table(residual)  # the mark reaches every format
+    tables = {t.title.split(" (")[0]: t for t in T.estimate_tables(heywood)}
+    speed = tables["Factor speed"]
+    x9 = [k for k, row in enumerate(speed.rows) if row[0] == "x9"]
+    assert speed.flagged == tuple(x9)
+    assert speed.columns[-1] == "Problem"
+    assert "negative variance" in speed.rows[x9[0]][-1]
+    assert speed.rows[x9[0]][speed.columns.index("R²")] == "2.00"
+    assert "negative variance" in csv_table(speed)  # the mark reaches every format
+    assert tables["Factor visual"].flagged == ()
 
 
 def test_methods_paragraph_does_not_report_an_inadmissible_solution_as_a_good_fit(heywood, hs_data):

@@ -49,7 +49,7 @@ def _assert_user_error(proc: subprocess.CompletedProcess, code: int, *words: str
 def test_fit_prints_report_and_writes_json(workdir):
     proc = run("fit", "rider.cfa", "--data", "rider.csv", "--json", "out.json", cwd=workdir)
     assert proc.returncode == 0, proc.stderr
-    for heading in ("Model fit", "Loadings", "Residual (error) variances", "Largest modification indices", "not laws"):
+    for heading in ("Model fit", "Loading", "Factor variances and correlations", "Largest modification indices", "not laws"):
         assert heading in proc.stdout
     result = json.loads((workdir / "out.json").read_text())
     assert set(result) >= {"converged", "estimator", "n_obs", "fit", "estimates", "modification_indices", "warnings"}

@@ -98,7 +98,35 @@ def test_decision_rule_is_checked_and_named(tmp_path):
     proc = run("invariance", str(tmp_path / "m.cfa"), "--data", str(data), "--group", "grp", "--decide-by", "both",
                "--json", str(out))
     assert proc.returncode == 0, proc.stderr
-    assert "judged by " + DecisionRule.BOTH.description in " ".join(proc.stdout.split())
+    assert "judged by " + DecisionRule.BOTH.description.replace("alpha", ".05") in " ".join(proc.stdout.split())
     assert json.loads(out.read_text())["decision_rule"]["name"] == "both"
     bad = run("invariance", str(tmp_path / "m.cfa"), "--data", str(data), "--group", "grp", "--decide-by", "cfi")
     assert bad.returncode == 2 and "Traceback" not in bad.stderr
+
+
+def test_alpha_with_the_change_in_fit_rule_and_ordinal_change_in_fit_are_errors():
+    with pytest.raises(OptionError, match="which the fit-change rule does not use"):
+        invariance(MODEL, groups_data(1), "grp", decide_by="fit-change", alpha=0.01)
+    data = groups_data(1)
+    for item in [f"y{i}" for i in range(1, 7)]:
+        data[item] = pd.cut(data[item], [-np.inf, -0.5, 0.5, np.inf], labels=False) + 1
+    with pytest.raises(OptionError, match="judge the steps by the difference tests"):
+        invariance(MODEL, data, "grp", ordinal="all", decide_by="both")
+
+
+def test_no_latent_mean_for_a_factor_with_fewer_than_two_equal_items():
+    # y5 0.8 higher and y6 0.8 lower in the second group: the search frees two of h's three intercepts
+    data = groups_data(5, shift=(1, 4))
+    data.loc[data["grp"] == "g2", "y5"] += 0.3
+    data.loc[data["grp"] == "g2", "y6"] -= 0.8
+    result = invariance(MODEL, data, "grp", partial="auto")
+    assert sorted(f.variables[0] for f in result.freed) == ["y5", "y6"]
+    assert {d.factor for d in result.latent_differences} == {"f"}
+    assert "None for h: fewer than two of its items keep equal loadings and intercepts" in result.latent_note
+
+
+def test_a_configural_model_that_does_not_converge_is_an_estimation_error(hs_data):
+    from cfa_tool.errors import EstimationError
+
+    with pytest.raises(EstimationError, match="the configural model did not converge"):
+        invariance("factor f: x1, x2, x3\n", hs_data, "school", max_iterations=1)

@@ -50,7 +50,7 @@ def _count(pattern: str, text: str) -> int:
 def test_html_report_has_every_section_and_no_external_assets(demo_result):
     page = html_report(demo_result)
     f = demo_result.fit
-    for words in ("Summary for a paper", "Path diagram", "Model fit", "Loadings", "Factor covariances", "Residual correlations",
+    for words in ("Summary for a paper", "Path diagram", "Model fit", "Factor ", "Factor variances and correlations", "Residual correlations",
                   "Largest modification indices", "Items: descriptive statistics (analysed rows)", "Correlations of the items", "not laws", "licensed professional",
                   f"\u03c7\u00b2({f.df}) = {f.chi_square:.2f}"):
         assert words in page, words
@@ -115,7 +115,7 @@ def test_methods_paragraph_reports_the_numbers(demo_result):
 
 def test_notebook_display(demo_result):
     fragment = demo_result._repr_html_()
-    assert fragment.startswith('<p class="note">N = 480 rows analysed') and "Loadings" in fragment and "<html" not in fragment
+    assert fragment.startswith('<p class="note">N = 480 rows analysed') and "Error variance" in fragment and "<html" not in fragment
 
 
 def test_cli_writes_every_report(tmp_path):
@@ -125,9 +125,10 @@ def test_cli_writes_every_report(tmp_path):
     assert (tmp_path / "r.html").read_text().startswith("<!DOCTYPE html>")
     assert (tmp_path / "d.svg").read_text().startswith("<svg")
     assert "Model fit" in (tmp_path / "r.md").read_text()
-    loadings = (tmp_path / "tables" / "loading.csv").read_text().splitlines()
-    assert loadings[0].startswith("Factor,Indicator,Estimate")
-    assert "\\toprule" in (tmp_path / "tables" / "loading.tex").read_text()
+    loadings = (tmp_path / "tables" / "factor_1.csv").read_text().splitlines()
+    assert loadings[0].startswith("Item,Standardized loading,Loading,SE,z,p")
+    assert "\\toprule" in (tmp_path / "tables" / "factor_1.tex").read_text()
+    assert (tmp_path / "tables" / "factors.csv").read_text().startswith("Factor,With,Estimate")
     assert not list(tmp_path.glob(".*.tmp"))
 
 
@@ -216,10 +217,12 @@ def test_csv_tables_hold_numbers(demo_result, tmp_path):
     from cfa_tool.reporting.text_formats import csv_table
 
     loading = pd.read_csv(pd.io.common.StringIO(csv_table(T.estimate_tables(demo_result)[0])))
-    for column in ("Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper", "Standardized", "R²"):
+    for column in ("Standardized loading", "Loading", "SE", "z", "p", "95% CI lower", "95% CI upper", "R²",
+                   "Error variance"):
         assert pd.api.types.is_float_dtype(loading[column]), column
-    free = [r for r in demo_result.estimates if r.kind == "loading" and r.free]
-    row = loading[(loading["Factor"] == free[0].variables[0]) & (loading["Indicator"] == free[0].variables[1])].iloc[0]
+    free = [r for r in demo_result.estimates if r.kind == "loading" and r.free
+            and r.variables[0] == demo_result.latent[0]]
+    row = loading[loading["Item"] == free[0].variables[1]].iloc[0]
     assert row["p"] == free[0].p_value and row["95% CI upper"] == free[0].ci95[1]  # full precision, not '< .001'
     fit = pd.read_csv(pd.io.common.StringIO(csv_table(T.fit_table(demo_result))))
     chi = fit[fit["Index"] == "Chi-square"].iloc[0]

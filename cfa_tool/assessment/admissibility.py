@@ -161,7 +161,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
                         ProblemKind.FACTOR_CORRELATION_BEYOND_ONE, (f"factor_covariance({latent[j]}, {latent[i]})",),
                         float(corr[i, j]),
                         f"The correlation of factors {latent[j]} and {latent[i]} is {corr[i, j]:.3f}, beyond +/-1: impossible.",
-                        "The two factors are not distinct in these data: consider one factor for both items sets, or "
+                        "The two factors are not distinct in these data: consider one factor for both item sets, or "
                         "look for cross-loadings and residual covariances that the model leaves out.", group))
         if not any(p.kind is ProblemKind.FACTOR_CORRELATION_BEYOND_ONE for p in out) and np.linalg.eigvalsh(phi)[0] < 0:
             out.append(Problem(
@@ -266,7 +266,12 @@ def solution_problems(table: ParameterTable, mats: list[ModelMatrices], theta: n
         found = matrix_problems(m, table.observed, table.latent, label, se_of)
         out.extend(p for p in found if standardized_loadings or p.kind is not ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE)
     if table.n_free:
-        out.extend(bound_problems(table.free_labels, theta, table.lower, table.upper))
+        labels = list(table.free_labels)
+        for par in table.parameters:  # name each free parameter as its table row does: residual_variance(x9) [group]
+            if len(par.terms) == 1 and labels[par.terms[0][0]] == table.free_labels[par.terms[0][0]]:
+                suffix = f" [{table.groups[par.group]}]" if table.multigroup else ""
+                labels[par.terms[0][0]] = par.label + suffix
+        out.extend(bound_problems(tuple(labels), theta, table.lower, table.upper))
         if cov_theta is not None:
-            out.extend(identification_problems(table.free_labels, se, theta))
+            out.extend(identification_problems(tuple(labels), se, theta))
     return tuple(out)

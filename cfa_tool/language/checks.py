@@ -168,6 +168,13 @@ def _check_method(spec: Spec) -> None:
         if name.text in seen:
             raise _fail(spec, f"'{name}' is named as a method factor twice", name.location)
         seen.add(name.text)
+        for factor in spec.factors:
+            if factor.name.text == name.text and any(i.text in spec.factor_names for i in factor.indicators):
+                raise _fail(spec, f"'{name}' explains other factors; a method factor stands for a way of answering "
+                                  f"items and loads on items only", name.location)
+            if any(i.text == name.text for i in factor.indicators):
+                raise _fail(spec, f"'{name}' is explained by the higher-order factor '{factor.name}'; a method factor "
+                                  f"(a way of answering) is not part of a trait", name.location)
     if spec.method and len(seen) == len(spec.factor_names):
         raise _fail(spec, "every factor is marked as a method factor; a model needs at least one trait",
                     spec.method[0].location)

@@ -153,6 +153,8 @@ def _unexpected_token_message(exc: UnexpectedToken) -> str:
         guess = close_names(word, STATEMENT_WORDS)
         hint = f"; did you mean '{guess[0]}'?" if guess else f"; a statement starts with one of: {', '.join(STATEMENT_WORDS)}"
         return f"unknown statement {shown}{hint}"
+    if token.type == "_NL":
+        return f"the line ends too early; expected {_or_list(sorted(set(words)))}"
     return f"unexpected {shown}; expected {_or_list(sorted(set(words)))}"
 
 

@@ -93,7 +93,8 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
     added = tuple(p.key() for p in spec.covary if p.first.text in latent and not (p.first.text in exo and p.second.text in exo))
     uncorrelated = tuple((p.first.text, p.second.text) for p in spec.uncorrelated)
     exo_first = [f for f in first_order if f in exo]
-    correlated = len(exo_first) > 1
+    held = {frozenset(p) for p in uncorrelated}
+    correlated = any(frozenset((a, b)) not in held for i, a in enumerate(exo_first) for b in exo_first[i + 1:])
     return ModelDescription(
         first_order=first_order,
         higher_order=higher,

@@ -11,6 +11,7 @@ that from the result's model description, never from a generic template.
 
 from __future__ import annotations
 
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.reporting.numbers import unit
 
 CHI = "\u03c7\u00b2"
@@ -61,10 +62,17 @@ def _structure(result, d) -> str:
     traits = [f for f in d.first_order if f not in methods]
     n_first = len(traits)
     noun = "trait factor" if methods else "factor"
+    held = {frozenset(p) for p in d.uncorrelated}
+    pairs = [frozenset((a, b)) for i, a in enumerate(traits) for b in traits[i + 1:]]
     if n_first == 1:
         factors = f"one {noun} ({traits[0]})"
     else:
-        kind = f"correlated {noun}s" if d.correlated_factors else f"{noun}s"
+        if pairs and all(p in held for p in pairs):
+            kind = f"uncorrelated {noun}s"
+        elif d.correlated_factors and any(p not in held for p in pairs):
+            kind = f"correlated {noun}s"
+        else:
+            kind = f"{noun}s"
         factors = f"{_count(n_first, kind[:-1], kind)} ({_list(traits)})"
     if methods:
         named = [f for f in d.first_order if f in methods]
@@ -215,10 +223,16 @@ def methods_paragraph(result) -> str:
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
     inadmissible = not result.admissible
     if inadmissible:
-        named = [p.phrase() for p in result.problems if p.kind.inadmissible]
-        parts.append(f"The solution was not admissible: it has {_list(named)}. Its estimates therefore cannot "
-                     f"describe a population and its fit is not evidence for the model; the values below are reported "
-                     f"only so that the problem can be judged.")
+        serious = [p for p in result.problems if p.kind.inadmissible]
+        named = [p.phrase() for p in serious]
+        if all(p.kind is ProblemKind.ON_BOUND for p in serious):
+            parts.append(f"The solution lies on a boundary ({_list(named)}): the unrestricted estimate would lie beyond "
+                         f"the bound, so the solution is not admissible as it stands, and standard errors and tests "
+                         f"of parameters at a bound are not reliable.")
+        else:
+            parts.append(f"The solution was not admissible: it has {_list(named)}. Its estimates therefore cannot "
+                         f"describe a population and its fit is not evidence for the model; the values below are "
+                         f"reported only so that the problem can be judged.")
     parts.append(_fit_sentence(result))
     loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed]
     if loadings:

@@ -78,6 +78,20 @@ def problem_notice(result) -> ProblemNotice | None:
     return ProblemNotice(NOT_ADMISSIBLE if inadmissible else CAUTION, lines, inadmissible)
 
 
+def problem_table(result) -> ReportTable | None:
+    """The problems of the solution as a table (for data files, where the notice of the views cannot go)."""
+    notice = problem_notice(result)
+    if notice is None:
+        return None
+    rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameters),
+             "" if p.value is None else num(p.value), p.group or "", p.explanation, p.advice] for p in result.problems]
+    values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameters), p.value, p.group or "",
+               p.explanation, p.advice] for p in result.problems]
+    columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
+               ("Explanation", "l"), ("What to try", "l")]
+    return _table("problems", notice.heading, columns, rows, values=([c for c, _ in columns], values))
+
+
 def row_problem(result, kind: str, variables: tuple[str, ...], group: str | None) -> str:
     """The few words a table row shows when its parameter is part of a problem ('' when it is not)."""
     for p in getattr(result, "problems", ()):
@@ -122,7 +136,7 @@ def fit_table(result) -> ReportTable:
         rows += [["Log-likelihood", num(f.log_likelihood), ""],
                  ["AIC / BIC / adjusted BIC", f"{num(f.aic)} / {num(f.bic)} / {num(f.sabic)}", "lower is better"]]
     rows.append(["Free parameters", str(f.n_free_parameters), ""])
-    return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")], rows, GUIDE_NOTE,
+    return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")], rows, _unusable(result) + GUIDE_NOTE,
                   values=(["Index", "Value", "df", "p", "90% lower", "90% upper"], _fit_values(result)))
 
 
@@ -149,52 +163,158 @@ def _fit_values(result) -> list[list]:
     return rows
 
 
+def _scale_phrase(result, factor: str) -> str:
+    """How a factor got its scale, in a few words for the heading of its block."""
+    d = result.description
+    scale = next((s for s in d.scales if s.factor == factor), None) if d is not None else None
+    if scale is None:
+        return ""
+    if scale.method == "marker" and scale.marker:
+        return f"scale: loading of {scale.marker} fixed at 1"
+    return {"variance": "scale: variance fixed at 1", "effects": "scale: loadings average 1",
+            "fixed by the model": "scale: fixed by the model"}.get(scale.method, f"scale: {scale.method}")
+
+
+def _interval(low: float, high: float) -> str:
+    return "" if missing(low) else f"[{num(low, 2)}, {num(high, 2)}]"
+
+
+def _factor_block(result, group: int, k: int, factor: str, rows: list, residual: dict, problems: list[str]
+                  ) -> ReportTable:
+    """One factor: each indicator's standardized loading first, then the loading with its SE, interval and p,
+    the indicator's R-squared and its error variance (for a higher-order factor: the lower factor's
+    disturbance variance)."""
+    label = result.groups[group].label
+    r_squared = result.groups[group].r_squared
+    observed = set(result.observed)
+    higher = any(r.variables[1] not in observed for r in rows)
+    mark_any = any(problems)
+    columns = [("Factor" if higher else "Item", "l"), ("Std.", "r"), ("Loading", "r"), ("SE", "r"), ("95% CI", "r"),
+               ("p", "r")] + ([] if higher else [("R²", "r")]) + [
+        ("Disturbance" if higher else "Error variance", "r")] + ([("Problem", "l")] if mark_any else [])
+    body, numbers = [], []
+    for r, mark in zip(rows, problems):
+        target = r.variables[1]
+        rest = residual.get(target)
+        r2 = r_squared.get(target)
+        cells = [target, unit(r.standardized, 2) if abs(r.standardized) <= 1 else num(r.standardized, 2),
+                 num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value)]
+        if not higher:
+            cells.append("" if r2 is None else (unit(r2, 2) if 0 <= r2 <= 1 else num(r2, 2)))
+        cells.append(num(rest.estimate) if rest is not None else "")
+        if mark_any:
+            cells.append(mark)
+        body.append(cells)
+        numbers.append([target, r.standardized, r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
+                        r.ci95[1], "yes" if r.free else "no", r2 if not higher else None,
+                        rest.estimate if rest is not None else None, rest.se if rest is not None and rest.free else None,
+                        rest.p_value if rest is not None else None] + ([mark] if mark_any else []))
+    value_columns = [columns[0][0], "Standardized loading", "Loading", "SE", "z", "p", "95% CI lower", "95% CI upper",
+                     "Free", "R²", "Error variance" if not higher else "Disturbance variance", "Its SE", "Its p"] + (
+        ["Problem"] if mark_any else [])
+    scale = _scale_phrase(result, factor)
+    title = f"Factor {factor}" + (f" ({scale})" if scale else "")
+    suffix = "" if label is None else f"_{group}"
+    return _table(f"factor_{k + 1}{suffix}", title, columns, body, flagged=tuple(i for i, m in enumerate(problems) if m),
+                  values=(value_columns, numbers))
+
+
+def _factor_matrix(result, group: int) -> ReportTable | None:
+    """The factors' variances (diagonal) and correlations (below it) as one small matrix; each covariance
+    with its SE and interval in the data-file version."""
+    label = result.groups[group].label
+    latent = list(result.latent)
+    if not latent:
+        return None
+    variance = {r.variables[0]: r for r in result.estimates if r.kind == "factor_variance" and r.group == label}
+    pairs = {frozenset(r.variables): r for r in result.estimates if r.kind == "factor_covariance" and r.group == label}
+    body, flagged = [], []
+    for i, a in enumerate(latent):
+        row = [f"{i + 1} {a}"]
+        bad = False
+        for j, b in enumerate(latent[: i + 1]):
+            if i == j:
+                v = variance.get(a)
+                row.append(num(v.estimate) if v is not None else "")
+                bad |= v is not None and bool(row_problem(result, "factor_variance", (a,), label))
+            else:
+                c = pairs.get(frozenset((a, b)))
+                row.append(unit(c.standardized, 2) if c is not None and abs(c.standardized) <= 1 else
+                           (num(c.standardized, 2) if c is not None else "0"))
+                bad |= c is not None and bool(row_problem(result, "factor_covariance", c.variables, label))
+        row += [""] * (len(latent) - i - 1)
+        body.append(row)
+        if bad:
+            flagged.append(i)
+    numbers = [[r.variables[0], r.variables[0], r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
+                r.ci95[1], r.standardized] for r in variance.values()]
+    numbers += [[*r.variables, r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0], r.ci95[1],
+                 r.standardized] for r in pairs.values()]
+    suffix = "" if label is None else f"_{group}"
+    note = "Diagonal: variances; below: correlations." if len(latent) > 1 else None
+    return _table(f"factors{suffix}", "Factor variances and correlations",
+                  [("", "l")] + [(str(k + 1), "r") for k in range(len(latent))], body, note, tuple(flagged),
+                  values=(["Factor", "With", "Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper",
+                           "Standardized (correlation)"], numbers))
+
+
 def estimate_tables(result, group: int = 0) -> list[ReportTable]:
+    """The estimates of one group: a block per factor, the factors' variance-correlation matrix, then
+    residual covariances, intercepts, factor means and thresholds."""
     tables = []
     label = result.groups[group].label
     r_squared = result.groups[group].r_squared
     suffix = "" if label is None else f"_{group}"
+    residual = {r.variables[0]: r for r in result.estimates if r.kind == "residual_variance" and r.group == label}
+    loadings = [r for r in result.estimates if r.kind == "loading" and r.group == label]
+    for k, factor in enumerate(result.latent):
+        rows = [r for r in loadings if r.variables[0] == factor]
+        if not rows:
+            continue
+        marks = []
+        for r in rows:
+            target = r.variables[1]
+            mark = row_problem(result, "loading", r.variables, label) or row_problem(
+                result, "residual_variance", (target,), label)
+            if not mark and r_squared.get(target, 0.0) > 1.0:
+                mark = "R² above 1: impossible"
+            marks.append(mark)
+        tables.append(_factor_block(result, group, k, factor, rows, residual, marks))
+    matrix = _factor_matrix(result, group)
+    if matrix is not None:
+        tables.append(matrix)
     for kind, title in KIND_TITLES.items():
+        if kind in ("loading", "factor_variance", "factor_covariance", "residual_variance"):
+            continue
         rows = [r for r in result.estimates if r.kind == kind and r.group == label]
         if not rows:
             continue
-        first = "Factor" if kind == "loading" else "Variable"
-        cols = [(first, "l")]
-        if kind in ("loading", "factor_covariance", "residual_covariance", "threshold"):
-            cols.append(({"loading": "Indicator", "threshold": "Step"}.get(kind, "With"), "l"))
-        cols += [("Estimate", "r"), ("SE", "r"), ("z", "r"), ("p", "r"), ("95% CI", "r"), ("Standardized", "r")]
-        if kind == "loading":
-            cols.append(("R²", "r"))
+        cols = [("Variable", "l")]
+        if kind in ("residual_covariance", "threshold"):
+            cols.append(({"threshold": "Step"}.get(kind, "With"), "l"))
+        cols += [("Estimate", "r"), ("SE", "r"), ("95% CI", "r"), ("p", "r"), ("Std.", "r")]
         marks = [row_problem(result, kind, r.variables, r.group) for r in rows]
-        if kind == "loading":  # an indicator with R-squared above 1 is marked on its loading rows
-            marks = [m or ("R² above 1: impossible" if r_squared.get(r.variables[1], 0.0) > 1.0 else "")
-                     for m, r in zip(marks, rows)]
         if any(marks):
             cols.append(("Problem", "l"))
-        body = []
-        numbers = []
+        body, numbers = [], []
         previous = None
         for r, mark in zip(rows, marks):
-            numbers.append(list(r.variables) + [r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0], r.ci95[1],
-                                                r.standardized, "yes" if r.free else "no"]
-                           + ([r_squared.get(r.variables[1])] if kind == "loading" else []) + ([mark] if any(marks) else []))
+            numbers.append(list(r.variables) + [r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
+                                                r.ci95[1], r.standardized, "yes" if r.free else "no"]
+                           + ([mark] if any(marks) else []))
             names = list(r.variables)
-            if kind in ("loading", "threshold"):
+            if kind == "threshold":
                 shown = names[0] if names[0] != previous else ""
                 previous = names[0]
                 names[0] = shown
-            ci = "" if missing(r.ci95[0]) else f"[{num(r.ci95[0])}, {num(r.ci95[1])}]"
-            cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", num(r.z, 2), p_value(r.p_value), ci,
-                             num(r.standardized)]
-            if kind == "loading":
-                r2 = r_squared.get(r.variables[1])
-                cells.append(num(r2) if r2 is not None else "")
+            cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value),
+                             num(r.standardized, 2)]
             if any(marks):
                 cells.append(mark)
             body.append(cells)
         value_columns = [c for c, _ in cols[:len(rows[0].variables)]] + [
             "Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper", "Standardized", "Free"] + (
-            ["R²"] if kind == "loading" else []) + (["Problem"] if any(marks) else [])
+            ["Problem"] if any(marks) else [])
         tables.append(_table(kind + suffix, title, cols, body, flagged=tuple(i for i, m in enumerate(marks) if m),
                              values=(value_columns, numbers)))
     return tables
@@ -268,7 +388,8 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
     note = (("Ordinal versions, on the latent responses behind the items (alpha from the polychoric correlations). "
              if ordinal else "") + keying_sentence(rows) +
             "Omega: share of the keyed item sum's variance due to the factor (for a higher-order factor: omega "
-            "hierarchical); omega total: due to all factors; alpha from the sample covariances of the keyed items; "
+            "hierarchical); omega total: due to all factors; alpha from the "
+            + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
             "composite reliability from the standardized loadings.")
     methods = result.description.method_factors if result.description is not None else ()
     if methods:
@@ -276,7 +397,17 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
                  f"coefficients and take no part in the Fornell-Larcker and HTMT comparisons.")
     return _table(f"reliability_{group}", "How reliable are the scale scores?" + (" (ordinal)" if ordinal else ""),
                   [("Factor", "l"), ("Items", "r"), ("Omega", "r"), ("Omega total", "r"), ("Alpha", "r"),
-                   ("Composite reliability", "r")], body, note)
+                   ("Composite reliability", "r")], body, _unusable(result) + note, _all_if_unusable(result, body))
+
+
+def _unusable(result) -> str:
+    """The first words of a note under coefficients computed from an impossible solution."""
+    return ("" if result.admissible else "NOT INTERPRETABLE: the solution is not admissible, so these coefficients come "
+                                         "from impossible estimates (see the problems at the top). ")
+
+
+def _all_if_unusable(result, body) -> tuple[int, ...]:
+    return () if result.admissible else tuple(range(len(body)))
 
 
 def distinct_table(result, group: int = 0) -> ReportTable | None:
@@ -322,7 +453,8 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
     if not any(row[3] for row in body):  # no interval to show (factors scaled by a marker or effects coding)
         columns.pop(3)
         body = [row[:3] + row[4:] for row in body]
-    return _table(f"distinct_{group}", "Are the factors distinct?", columns, body, note)
+    return _table(f"distinct_{group}", "Are the factors distinct?", columns, body, _unusable(result) + note,
+                  _all_if_unusable(result, body))
 
 
 def keying_sentence(rows) -> str:

@@ -103,6 +103,10 @@ def render_comparison(comparison, console: Console) -> None:
     for n in comparison.not_nested:
         advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
         console.print(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
+    if comparison.tests:
+        console.print("Changes in CFI and RMSEA are read against common-practice guides (a fall in CFI of more than .010, "
+                      "Cheung & Rensvold 2002; a rise in RMSEA of .015 or more, Chen 2007), which are conventions, "
+                      "not tests.")
     console.print(Text(GUIDE_NOTE, style="italic"))
 
 
@@ -126,7 +130,8 @@ def render_invariance(result, console: Console) -> None:
     console.print(f"Reference group (factor means fixed at zero): {result.groups[0]}")
     for w in result.warnings:  # problems first
         console.print(Text(f"Warning: {w}", style="bold"))
-    console.print(f"Each step after the configural one is judged by {result.rule.description}.")
+    console.print(f"Each step after the configural one is judged by "
+                  f"{result.rule.description.replace('alpha', unit(result.alpha, 2))}.")
     # two narrow tables (each level's own fit; each step against the one before) read in 80 columns;
     # a partially invariant step shows first with every equality, then with the freed ones
     table = _table("Fit of each level", [("Level", "left"), ("Chi-square (df)", "right"), ("p", "right"),
@@ -178,8 +183,10 @@ def render_invariance(result, console: Console) -> None:
                           *([str(f.group)] if many else []), num(f.score, 2))
         console.print(freed)
     for step in result.steps:
-        if step.stopped and step.stopped != "the step holds":
-            console.print(f"The search at the {step.level} step stopped: {step.stopped}.")
+        if step.stopped and (step.partial or step.stopped != "the step holds"):
+            freed_words = f"freed {len(step.freed)} parameter{'s' if len(step.freed) != 1 else ''} and " \
+                if step.partial else ""
+            console.print(f"The search at the {step.level} step {freed_words}stopped: {step.stopped}.")
         if not step.holds and step.culprits:
             top = step.culprits[:5]
             console.print(f"Likeliest sources of misfit at the {step.level} step (score tests): " + "; ".join(
@@ -253,12 +260,17 @@ def render_population(simulated, console: Console) -> None:
     standardized, and whether the model file gave it or it took the default."""
     population = simulated.population
     console.print(Text("Population values used", style="bold underline"))
-    console.print("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances 1) "
-                  "and converted to the model's scaling; values from 'start' and 'fix' statements replace them.")
+    if population.fitted_from is not None:
+        console.print(f"Every value is an estimate of the earlier fit in {population.fitted_from}. The data follow the "
+                      f"fitted model exactly, so they carry none of that model's misfit to the data it was fitted to.")
+    else:
+        console.print("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances "
+                      "1) and converted to the model's scaling; values from 'start' and 'fix' statements replace them.")
     table = _table("", [("Parameter", "left"), ("Value", "right"), ("Standardized", "right"), ("From", "left")])
     for v in population.values():
         table.add_row(f"{v['kind'].replace('_', ' ')} {', '.join(v['variables'])}", num(v["value"]),
-                      num(v["standardized"]), "default" if v["default"] else "model file")
+                      num(v["standardized"]), "default" if v["default"] else
+                      ("earlier fit" if population.fitted_from is not None else "model file"))
     console.print(table)
 
 

@@ -22,7 +22,7 @@ from cfa_tool.api import (check_ordinal_options, make_options, moments_for, ordi
                           ordinal_items_of, read_inputs)
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import EstimationError, OptionError
 from cfa_tool.fitting import assess, estimate
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.results import FitResult, clean
@@ -219,7 +219,7 @@ class InvarianceResult:
 
 
 def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
-               reference_group: str | None = None, partial: str = "none", alpha: float = 0.05,
+               reference_group: str | None = None, partial: str = "none", alpha: float | None = None,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None,
                decide_by: str | DecisionRule = DecisionRule.DIFFERENCE_TEST, **options) -> InvarianceResult:
@@ -233,8 +233,11 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                           f"{type(group).__name__}")
     if partial not in PARTIAL_CHOICES:
         raise OptionError(f"partial must be one of {', '.join(PARTIAL_CHOICES)}, not '{partial}'")
-    alpha = check.probability("alpha (the level of the difference tests)", alpha)
     rule = DecisionRule.parse(decide_by)
+    if alpha is not None and rule is DecisionRule.FIT_CHANGE:
+        raise OptionError("alpha is the level of the difference tests, which the fit-change rule does not use; give "
+                          "alpha only with --decide-by difference-test or both")
+    alpha = check.probability("alpha (the level of the difference tests)", 0.05 if alpha is None else alpha)
     fit_options = replace(make_options(options), diagnostics=False)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     if spec.invariant:
@@ -243,6 +246,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if ordinal_items:
         check_ordinal_options(fit_options)
+        if rule is not DecisionRule.DIFFERENCE_TEST:
+            raise OptionError("with ordinal items the fit indices of each step come from its own adjusted statistic and "
+                              "cannot be compared across steps; judge the steps by the difference tests "
+                              "(--decide-by difference-test)")
         groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items)
         ladder = OrdinalLadder(ordinal_estimator)
     else:
@@ -266,9 +273,14 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             est = ladder.estimate(level_spec, groups, fit_options, start)
             result = ladder.assess(level_spec, groups, est, fit_options, group)
             if not result.converged:
+                why = result.problems[0] if result.problems else None
+                reason = (f" ({result.message}). {why.advice}" if why is not None else f" ({result.message})")
+                if not steps:  # nothing to report without a configural model
+                    raise EstimationError(f"the configural model did not converge{reason}")
                 steps.append(InvarianceStep(level, result, None, False, ()))
-                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
-                                        tuple(notes) + (f"the {level} model did not converge; the ladder stops there",),
+                stopped = (f"the {level} model did not converge{reason}; the ladder stops there"
+                           + (", and the partial search could not run at this step" if partial != "none" else ""))
+                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, (stopped,) + tuple(notes),
                                         rule)
             test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
             holds = configural_fits(result) if test is None else _step_holds(rule, test, alpha, result, previous[1], level)
@@ -359,8 +371,23 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str]:
     size = {g.label: g.data.n_obs for g in result.groups}
     rows = {(r.kind, r.variables, r.group): r for r in result.estimates if r.kind in ("mean", "factor_variance")}
     reference = labels[0]
+    # a factor's means are comparable when at least two of its items keep equal loadings and intercepts
+    # (Byrne, Shavelson & Muthen 1989); with fewer, its scalar equality is not tested at all
+    freed = [f for s in steps if s.level in ("thresholds", "metric", "scalar") for f in s.freed]
+    items_of: dict[str, set[str]] = {}
+    for r in result.estimates:
+        if r.kind == "loading" and r.group == reference and r.variables[1] in result.observed:
+            items_of.setdefault(r.variables[0], set()).add(r.variables[1])
+    too_few = []
+    for factor, items in items_of.items():
+        loose = {f.variables[-1] for f in freed if f.kind in ("intercept", "threshold") and f.variables[-1] in items}
+        loose |= {f.variables[1] for f in freed if f.kind == "loading" and f.variables[0] == factor}
+        if len(items - loose) < 2:
+            too_few.append(factor)
     out = []
     for factor in result.latent:
+        if factor in too_few:
+            continue
         ref_var = rows.get(("factor_variance", (factor,), reference))
         for label in labels[1:]:
             mean = rows.get(("mean", (factor,), label))
@@ -371,11 +398,15 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str]:
             d = mean.estimate / np.sqrt(pooled) if pooled > 0 else float("nan")
             out.append(LatentDifference(factor, label, mean.estimate, mean.se, mean.ci95, mean.p_value, float(d),
                                         var.estimate, var.se, ref_var.estimate))
+    withheld = (f" None for {', '.join(too_few)}: fewer than two of its items keep equal loadings and intercepts "
+                f"across groups, so the equality that makes its means comparable is not tested (Byrne, Shavelson & "
+                f"Muthen 1989)." if too_few else "")
     which = "the partially invariant scalar model" if any(s.partial for s in steps if s.level != "strict") else \
         "the scalar model"
     return tuple(out), (f"From {which}: each group's factor means against the reference group {reference} (whose means "
                         f"are fixed at 0); standardized by the pooled latent standard deviation of the two groups."
-                        + ("" if steps[0].holds else " The configural model misfits, so read them with caution."))
+                        + ("" if steps[0].holds else " The configural model misfits, so read them with caution.")
+                        + withheld)
 
 
 def _decimal(value: float) -> str:

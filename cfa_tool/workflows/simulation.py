@@ -41,6 +41,7 @@ class Population:
     theta: np.ndarray
     sigma: np.ndarray
     defaulted: tuple[str, ...]  # labels of the parameters that took default values
+    fitted_from: str | None = None  # the earlier fit the values come from (None: the model file and defaults)
 
     @property
     def observed(self) -> tuple[str, ...]:
@@ -177,10 +178,17 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
     """Population values taken from an earlier fit of the same model: every free parameter's estimate, so
     reverse-keyed loadings, negative correlations and the observed residual variances carry over."""
     rows, source, admissible, grouped = fitted_estimates(fitted)
+    if any(isinstance(row, dict) and row.get("kind") == "threshold" for row in rows):
+        raise OptionError(f"{source}: the fit is of ordinal items, whose thresholds a population of continuous "
+                          f"answers cannot carry; fit the items as continuous to plan from them")
     if grouped:
         raise OptionError(f"{source}: the fit has groups; population values are taken from a fit of one group")
     if not admissible:
-        raise OptionError(f"{source}: the fitted solution is not admissible, so it cannot serve as a population")
+        problems = fitted.get("problems", []) if isinstance(fitted, dict) else getattr(fitted, "problems", ())
+        first = problems[0] if problems else None
+        what = (first.get("kind") if isinstance(first, dict) else first.kind.value) if first is not None else ""
+        raise OptionError(f"{source}: the fitted solution is not admissible ({what or 'see its problems'}), so it "
+                          f"cannot serve as a population")
     if spec.starts:
         raise OptionError("give population values either by 'start' statements or from a fitted result, not both")
 
@@ -195,6 +203,12 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
         except (KeyError, TypeError, ValueError):
             raise OptionError(f"{source}: an estimate row lacks its kind, variables or value") from None
     table = build_parameter_table(spec)
+    known = {key(par.kind, par.variables) for par in table.parameters}
+    extra = [f"{kind}({', '.join(names)})" for (kind, names), (_, free) in value_of.items() if free and
+             (kind, names) not in known]
+    if extra:
+        raise OptionError(f"{source} estimates {', '.join(extra[:3])}, which this model does not have: it is the "
+                          f"result of a different model")
     theta = np.full(table.n_free, np.nan)
     for par in table.parameters:
         found = value_of.get(key(par.kind, par.variables))
@@ -219,7 +233,7 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
     sigma = model.implied(theta)
     if np.linalg.eigvalsh(sigma)[0] <= 0:
         raise OptionError(f"{source}: its estimates imply a covariance matrix that is not positive definite")
-    return Population(spec, table, theta, sigma, ())
+    return Population(spec, table, theta, sigma, (), source)
 
 
 def population_from_spec(spec: Spec, fitted=None) -> Population:
