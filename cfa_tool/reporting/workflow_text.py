@@ -286,15 +286,16 @@ def render_montecarlo(result, console: Console) -> None:
     if result.defaulted:
         console.print("Population values not given in the model file took defaults: " + ", ".join(result.defaulted))
     # what decides the plan first: power, then whether intervals and estimates can be trusted at this N
-    table = _table("Per parameter", [("Parameter", "left"), ("Power", "right"), ("Intervals covering the truth", "right"),
+    table = _table("Per parameter", [("Parameter", "left"), ("Power", "right"), ("Coverage", "right"),
                                      ("Estimate bias %", "right"), ("SE bias %", "right")])
     for p in result.parameters:
         table.add_row(p.label, unit(p.power, 2), f"{100 * p.coverage:.1f}%", _percent(p.relative_bias),
                       _percent(p.se_bias))
-    table.columns[0].no_wrap = True
+    table.columns[0].min_width = min(max((len(p.label) for p in result.parameters), default=9), 36)
+    table.columns[0].overflow = "fold"  # a parameter's name is never cut short
     console.print(table)
     console.print(f"Power: share of replications in which the parameter differs from zero at alpha {unit(result.alpha, 2)}; "
-                  f"intervals: 95% Wald intervals (nominal 95%); bias: mean estimate (or mean SE) against the population "
+                  f"coverage: share of 95% Wald intervals that hold the population value (nominal 95%); bias: mean estimate (or mean SE) against the population "
                   f"value (or the SD of the estimates). Population values, mean estimates and SDs are in the JSON "
                   f"(--json).")
 
