@@ -402,7 +402,7 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
 
 def _unusable(result) -> str:
     """The first words of a note under coefficients computed from an impossible solution."""
-    return ("" if result.admissible else "NOT INTERPRETABLE: the solution is not admissible, so these coefficients come "
+    return ("" if result.admissible else "NOT INTERPRETABLE: the solution is not admissible, so these values come "
                                          "from impossible estimates (see the problems at the top). ")
 
 
