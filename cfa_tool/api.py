@@ -14,7 +14,7 @@ from cfa_tool.data.matching import check_columns, check_declared_ranges
 from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
-from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file, summary_moments
+from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
 from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
 from cfa_tool.fitting import FitOptions, fit_moments
@@ -62,8 +62,12 @@ def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), 
 
 
 def summary_source(data) -> bool:
-    """Whether ``data`` names a summary-statistics file (by its extension)."""
-    return isinstance(data, (str, os.PathLike)) and Path(data).suffix.lower() == SUMMARY_SUFFIX
+    """Whether ``data`` names a summary-statistics file: by its extension (.stats), or a .csv file whose first
+    cell says it holds a covariance or correlation matrix."""
+    if not isinstance(data, (str, os.PathLike)):
+        return False
+    suffix = Path(data).suffix.lower()
+    return suffix == SUMMARY_SUFFIX or (suffix == ".csv" and holds_summary(data))
 
 
 def missing_codes_option(codes) -> tuple[float, ...]:
@@ -96,7 +100,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             frame = frame.mask(frame.isin(list(missing_codes)))
         return LoadedData(frame, "<data frame>")
     if isinstance(data, (str, Path)):
-        if Path(data).suffix.lower() == SUMMARY_SUFFIX:
+        if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes))

@@ -40,7 +40,7 @@ class EstimateRow:
     p_value: float
     ci95: tuple[float, float]
     standardized: float
-    standardized_latent: float
+    standardized_factors_only: float
     origin: str
     group: str | None = None
 
@@ -57,7 +57,7 @@ class EstimateRow:
                 "p_value": self.p_value,
                 "ci95": list(self.ci95),
                 "standardized": self.standardized,
-                "standardized_latent": self.standardized_latent,
+                "standardized_factors_only": self.standardized_factors_only,
             }
         )
 
