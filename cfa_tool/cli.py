@@ -57,6 +57,8 @@ def build_parser() -> argparse.ArgumentParser:
     _add_data_options(fit)
     _add_group_options(fit, required=False)
     _add_output_options(fit)
+    fit.add_argument("--id", metavar="COLUMN", help="column that names each row (never analysed): the case tables show it "
+                                                    "beside the data-row number")
 
     check = sub.add_parser("check", help="parse a model and check it against the data without fitting")
     check.add_argument("model", metavar="MODEL", help="model file")
@@ -570,7 +572,8 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
     result = fit(model, data, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
                  missing_codes=args.missing_codes, keep=args.keep, information=args.information,
                  mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=args.test,
-                 missing=args.missing, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
+                 missing=args.missing, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
+                 id_column=getattr(args, "id", None))
     return _emit(args, result, render)  # a model that does not converge raises EstimationError (exit 3)
 
 
