@@ -127,6 +127,9 @@ def build_parser() -> argparse.ArgumentParser:
 
     demo = sub.add_parser("demo", help="fit the bundled rider-experience demo and print the report")
     _add_output_options(demo)
+    from cfa_tool import commands
+
+    commands.add_parsers(sub)  # commands in modules of their own (cfa_tool/commands/)
     return parser
 
 
@@ -267,6 +270,10 @@ def _report_error(exc: CfaError) -> None:
 
 
 def _run(args: argparse.Namespace) -> int:
+    from cfa_tool import commands
+
+    if commands.handles(args.command):
+        return commands.run(args)
     if args.command == "demo":
         from cfa_tool.resources import resource_dir
 
