@@ -11,7 +11,7 @@ import argparse
 from importlib import import_module
 
 #: command name -> module (imported when the command runs or its parser is built)
-MODULES = {"scores": "cfa_tool.commands.scores"}
+MODULES = {"scores": "cfa_tool.commands.scores", "explore": "cfa_tool.commands.explore"}
 
 
 def add_parsers(sub) -> None:

@@ -22,6 +22,11 @@ METHOD_LABELS = {ScoreMethod.REGRESSION: "regression", ScoreMethod.BARTLETT: "Ba
                  ScoreMethod.EXPECTED_A_POSTERIORI: "posterior mean"}
 
 
+#: short column headers (the notes name the methods in full)
+METHOD_COLUMNS = {ScoreMethod.REGRESSION: "Regression", ScoreMethod.BARTLETT: "Bartlett",
+                  ScoreMethod.CORRELATION_PRESERVING: "Corr.-preserving"}
+
+
 def _where(q) -> str:
     return f" (group {q.group})" if q.group is not None else ""
 
@@ -51,23 +56,24 @@ def quality_table(result, k: int) -> ReportTable:
     q = result.quality[k]
     ordinal = not hasattr(q, "methods")
     if ordinal:
-        rows = [[name, unit(rho), unit(rel), "below .80" if low else ""]
+        rows = [[name, unit(rho) + (" (below .80)" if low else ""), unit(rel)]
                 for name, rho, rel, low in zip(q.factors, q.determinacy, q.reliability, q.low_determinacy)]
-        cols = [("Factor", "l"), ("Determinacy", "r"), ("Reliability", "r"), ("Caution", "l")]
+        cols = [("Factor", "l"), ("Determinacy", "r"), ("Reliability", "r")]
         note = ("Posterior-mean scores in these data: reliability Var(score) / (Var(score) + mean posterior variance), the "
                 "squared correlation of the score with its factor (law of total variance); determinacy its square root.")
     else:
-        cols = [("Factor", "l"), ("Determinacy", "r")] + [(f"Reliability: {METHOD_LABELS[m.method]}", "r") for m in q.methods]
-        cols.append(("Caution", "l"))
+        cols = [("Factor", "l"), ("Determinacy", "r")] + [(METHOD_COLUMNS[m.method], "r") for m in q.methods]
         rows = []
         for f, name in enumerate(q.factors):
-            rows.append([name, unit(q.determinacy[f])] + [unit(m.reliability[f]) for m in q.methods]
-                        + ["below .80" if q.low_determinacy[f] else ""])
-        note = ("Determinacy: the correlation of the regression scores with their factor (Grice 2001). Reliability of "
-                "each method's scores: the squared correlation of the score with its factor (Beauducel 2011). Values "
+            rows.append([name, unit(q.determinacy[f]) + (" (below .80)" if q.low_determinacy[f] else "")]
+                        + [unit(m.reliability[f]) for m in q.methods])
+        note = ("Determinacy: the correlation of the regression scores with their factor (Grice 2001). Then the "
+                "reliability of each method's scores (Corr.-preserving: correlation-preserving scores): the squared correlation of "
+                "the score with its factor (Beauducel 2011). Values "
                 "under the fitted model with every item answered; methods marked with * are written to the file: "
                 + ", ".join(METHOD_LABELS[m] + ("*" if m in result.methods else "") for m in LINEAR_METHODS) + ".")
-    return _table(f"score_quality_{k}", "Quality of the scores" + _where(q), cols, rows, note,
+    title = "Quality of the scores" + _where(q) + ("" if ordinal else ": determinacy, and reliability by method")
+    return _table(f"score_quality_{k}", title, cols, rows, note,
                   flagged=tuple(i for i, low in enumerate(q.low_determinacy) if low))
 
 
@@ -82,8 +88,9 @@ def correlation_table(result, k: int) -> ReportTable | None:
                         + [unit(m.score_correlations[i, j]) for m in q.methods])
     return _table(f"score_correlations_{k}", "Correlations of the scores beside the factors' correlations" + _where(q),
                   [("Factor", "l"), ("With", "l"), ("Factors", "r")]
-                  + [(f"Scores: {METHOD_LABELS[m.method]}", "r") for m in q.methods], rows,
-                  "Under the fitted model. Regression scores as a rule overstate the factors' correlations; "
+                  + [(METHOD_COLUMNS[m.method], "r") for m in q.methods], rows,
+                  "The factors' correlations, then those of each method's scores (Corr.-preserving: correlation-preserving "
+                  "scores), under the fitted model. Regression scores as a rule overstate the factors' correlations; "
                   "correlation-preserving scores keep them (Grice 2001; ten Berge et al. 1999).")
 
 

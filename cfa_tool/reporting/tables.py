@@ -43,6 +43,7 @@ class ReportTable:
     # text: None when every text cell already reads as a number
     value_columns: tuple[str, ...] | None = None
     values: tuple[tuple, ...] | None = None
+    faint: tuple[tuple[int, int], ...] = ()  # (row, column) cells shown faintly (e.g. small loadings)
 
 
 def _table(key: str, title: str, columns: list[tuple[str, str]], rows: list[list[str]], note: str | None = None,
