@@ -211,3 +211,24 @@ def test_python_entry_point_with_groups(hs_data):
     for label in ("Grant-White", "Pasteur"):
         rows = (hs_data["school"] == label).to_numpy()
         np.testing.assert_allclose(result.table.loc[rows, "visual_bartlett"].mean(), 0.0, atol=1e-8)
+
+
+def test_a_fit_scores_other_data_with_its_own_parameters(hs_data):
+    """Calibrate on the Grant-White pupils, score the Pasteur pupils: the regression scores are
+    Phi L' Sigma^-1 (x - m) with the calibration fit's Phi, L, Sigma = L Phi L' + Theta and m the calibration
+    rows' means (the saturated mean's ML estimate), computed here with numpy (Thurstone 1935)."""
+    import cfa_tool
+
+    calibration = hs_data[hs_data["school"] == "Grant-White"]
+    other = hs_data[hs_data["school"] == "Pasteur"]
+    fit = cfa_tool.fit(THREE_FACTORS, calibration)
+    scored = fit.scores(other, id_column="id")
+    assert scored.table["id"].tolist() == [str(v) for v in other["id"]]
+    L, phi, theta, _ = _estimates({"fit": fit.to_dict()})
+    sigma = L @ phi @ L.T + theta
+    x = other[ITEMS].to_numpy(float) - calibration[ITEMS].to_numpy(float).mean(axis=0)
+    expected = x @ np.linalg.solve(sigma, L @ phi)
+    np.testing.assert_allclose(scored.table[[f"{f}_regression" for f in FACTORS]].to_numpy(), expected, atol=1e-6)
+    # scored with its own fit, the calibration sample gets exactly what cfa_tool.scores writes
+    np.testing.assert_allclose(fit.scores(calibration).table.to_numpy(float),
+                               cfa_tool.scores(THREE_FACTORS, calibration).table.to_numpy(float), atol=1e-12)

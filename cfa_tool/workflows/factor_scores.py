@@ -27,6 +27,7 @@ class RowLeftOut(Enum):
 
     FILTERED = "left out by a row filter (--keep)"
     NO_GROUP = "no value in the group column"
+    UNKNOWN_GROUP = "a group the fit does not have"
 
 
 #: the header of the id column when the file's row names name the rows
@@ -272,6 +273,114 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
                        bool(standard_errors or ordinal_items), tuple(extra + own))
+
+
+def models_of_fit(result: FitResult) -> tuple[list, list]:
+    """Each group's scoring model from a fit result alone (its model text and estimates), for scoring other
+    data with the parameters of this fit.  A fit without a mean structure (one group, complete rows) takes
+    its intercepts from the sample means of the rows it was fitted to."""
+    from cfa_tool.fitting import model_structure
+    from cfa_tool.language.parser import parse_model
+    from cfa_tool.scoring.model import scoring_model
+
+    if "polychoric" in result.estimator:
+        raise OptionError("scoring new data with an earlier fit is available for continuous items only; for ordinal "
+                          "items, score the data the model is fitted to (cfa_tool.scores)")
+    if result.theta is None:
+        raise OptionError("this result holds no estimates to score with (a fit to summary statistics?)")
+    spec = parse_model(result.model_text, source=result.model_source)
+    labels = tuple(g.label for g in result.groups) if result.multigroup else None
+    mean_structure = result.multigroup or any(r.kind == "intercept" for r in result.estimates)
+    table, model = model_structure(spec, labels, mean_structure)
+    if table.n_free != len(result.theta) or tuple(table.observed) != tuple(result.observed):
+        raise OptionError("the result's estimates do not match its model text; refit the model")
+    out = []
+    for g, group in enumerate(result.groups):
+        means = None if mean_structure else np.asarray(group.sample_mean, dtype=float)
+        out.append(scoring_model(model.matrices(result.theta, g), table.observed, table.latent, group.label, means))
+    return out, [g.label for g in result.groups]
+
+
+def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
+                   sheet: str | None = None, missing_codes=(), keep=()) -> ScoreResult:
+    """Scores of the rows of ``data`` with the parameters of an earlier fit (``result``): a scale calibrated in one
+    sample scores another.  With groups, ``data`` needs the fit's group column, and each row is scored with its
+    group's parameters (a row of a group the fit does not have gets no scores).  The quality figures are those of
+    the fitted model; the report's fit is the earlier one."""
+    from cfa_tool import api
+    from cfa_tool.data.filters import apply_filters, parse_filter
+    from cfa_tool.data.matching import check_columns
+    from cfa_tool.data.row_ids import duplicate_note, row_ids
+
+    if not isinstance(result, FitResult):
+        raise OptionError(f"scores need a fit result (cfa_tool.fit), not {type(result).__name__}")
+    if not result.admissible:
+        raise EstimationError("the fitted solution is not admissible, so no factor scores are computed with it")
+    chosen = method_option(methods)
+    models, labels = models_of_fit(result)
+    loaded = api.load_data(data, sheet, missing_codes)
+    read_frame, source = loaded.frame.set_axis([str(c) for c in loaded.frame.columns], axis=1), loaded.source
+    if not read_frame.index.is_unique:
+        raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index)")
+    check_columns(_spec_of(result), list(read_frame.columns), source)
+    group = result.group_column
+    if group is not None and group not in read_frame.columns:
+        raise OptionError(f"the fit has groups by '{printable(group)}', which is not a column of {source}")
+    ids = row_ids(read_frame, source, id_column, result.observed, group, loaded.row_names)
+    frame, notes = read_frame, []
+    keep = api.keep_option(keep)
+    if keep:
+        frame, notes = apply_filters(read_frame, [parse_filter(k) for k in keep], source)
+    rows = _numeric(frame, models[0].items, source)
+    group_of_row = _group_keys(frame, group) if group is not None else np.full(len(frame), None, dtype=object)
+    from cfa_tool.scoring.linear import score_rows
+
+    m = models[0].m
+    n = len(read_frame)
+    values = {meth: np.full((n, m), np.nan) for meth in chosen}
+    errors = {meth: np.full((n, m), np.nan) for meth in chosen}
+    position = pd.Series(np.arange(n), index=read_frame.index)
+    counts: dict = {}
+    for model_g, label in zip(models, labels):
+        sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(frame))
+        if not len(sel):
+            continue
+        at = position.loc[frame.index[sel]].to_numpy()
+        for meth, block in score_rows(model_g, rows[sel], chosen).items():
+            values[meth][at], errors[meth][at] = block.scores, block.standard_errors
+            for why, c in block.unscored.items():
+                key = (why.value, meth.value)
+                counts[key] = counts.get(key, np.zeros(m, dtype=np.int64)) + np.asarray(c, dtype=np.int64)
+    for reason, number in ((RowLeftOut.FILTERED.value, n - len(frame)),
+                           (RowLeftOut.NO_GROUP.value, int(pd.isna(group_of_row).sum()) if group is not None else 0),
+                           (RowLeftOut.UNKNOWN_GROUP.value, int(sum(1 for v in group_of_row if v is not None
+                                                                    and v not in labels)) if group is not None else 0)):
+        if number:
+            for meth in chosen:
+                counts[(reason, meth.value)] = np.full(m, number)
+    factors = models[0].factors
+    columns: dict[str, object] = {}
+    id_name = None
+    if ids is not None:
+        id_name = id_column if id_column is not None else ROW_NAME_HEADER
+        columns[id_name] = ids.tolist()
+    for meth in chosen:
+        for f, name in enumerate(factors):
+            columns[column_name(name, meth)] = values[meth][:, f]
+            if standard_errors:
+                columns[column_name(name, meth, "se")] = errors[meth][:, f]
+    notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names")
+    notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
+                    f"{result.data.source}; the quality figures are those of that fit.")
+    unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
+    return ScoreResult(result, chosen, tuple(factors), id_name, pd.DataFrame(columns), tuple(_linear_quality(models)),
+                       unscored, bool(standard_errors), tuple(notes))
+
+
+def _spec_of(result: FitResult):
+    from cfa_tool.language.parser import parse_model
+
+    return parse_model(result.model_text, source=result.model_source)
 
 
 def _numeric(frame: pd.DataFrame, items: tuple[str, ...], source: str) -> np.ndarray:
