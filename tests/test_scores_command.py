@@ -232,3 +232,30 @@ def test_a_fit_scores_other_data_with_its_own_parameters(hs_data):
     # scored with its own fit, the calibration sample gets exactly what cfa_tool.scores writes
     np.testing.assert_allclose(fit.scores(calibration).table.to_numpy(float),
                                cfa_tool.scores(THREE_FACTORS, calibration).table.to_numpy(float), atol=1e-12)
+
+
+def test_scores_from_a_saved_fit_equal_those_of_the_fit_result(tmp_path, model_file, hs_data, capsys):
+    """fit --json on the Grant-White pupils, then scores --from-fit on the Pasteur pupils: the same numbers as the
+    fit result's own scores (tested above against the regression formula), read back from the JSON's estimates."""
+    import cfa_tool
+
+    calibration, other = tmp_path / "gw.csv", tmp_path / "pa.csv"
+    hs_data[hs_data["school"] == "Grant-White"].to_csv(calibration)
+    hs_data[hs_data["school"] == "Pasteur"].to_csv(other)
+    saved = tmp_path / "gw.json"
+    assert _run(["fit", model_file, "--data", calibration, "--json", saved], capsys)[0] == 0
+    out, js = tmp_path / "pa_scores.csv", tmp_path / "pa_scores.json"
+    code, text, err = _run(["scores", model_file, "--data", other, "--from-fit", saved, "--output", out, "--json", js,
+                            "--id", "id", "--method", "regression,bartlett"], capsys)
+    assert code == 0, err
+    written = pd.read_csv(out, dtype={"id": str})
+    expected = cfa_tool.fit(model_file, calibration).scores(other, id_column="id", methods=["regression", "bartlett"])
+    assert written["id"].tolist() == expected.table["id"].tolist()
+    np.testing.assert_allclose(written.iloc[:, 1:].to_numpy(), expected.table.iloc[:, 1:].to_numpy(float), atol=1e-9)
+    assert json.loads(js.read_text())["scored_data"] == str(other) and f"Scored data: {other}" in " ".join(text.split())
+    # a model other than the one fitted is refused, and nothing is written
+    other_model = tmp_path / "other.cfa"
+    other_model.write_text("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6, x9\nfactor speed: x7, x8\n")
+    code, _, err = _run(["scores", other_model, "--data", other, "--from-fit", saved, "--output", tmp_path / "no.csv"],
+                        capsys)
+    assert code == 2 and "not of the model" in err and not (tmp_path / "no.csv").exists()

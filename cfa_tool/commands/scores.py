@@ -29,7 +29,16 @@ def add_parser(sub) -> None:
                    help="rows with gaps in the fit: full-information ML (the default when a model variable has gaps) or "
                         "left out of the fit (listwise); every row is scored from the items it answered either way")
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
+    p.add_argument("--from-fit", metavar="RESULT.json",
+                   help="score the data with the parameters of an earlier fit of MODEL (its 'fit --json' result) instead "
+                        "of fitting the model to them; continuous items")
     add_report_options(p)
+
+
+#: options about fitting, which cannot apply when the parameters come from an earlier fit
+FITTING_OPTIONS = (("group", "--group"), ("reference_group", "--reference-group"), ("ordinal", "--ordinal"),
+                   ("ordinal_estimator", "--ordinal-estimator"), ("missing", "--missing"),
+                   ("max_iterations", "--max-iterations"))
 
 
 def _methods(text: str | None):
@@ -51,13 +60,27 @@ def run(args: argparse.Namespace) -> int:
     from cfa_tool.reporting.score_report import render_scores, scores_html_report, scores_markdown
     from cfa_tool.workflows.factor_scores import scores
 
+    from cfa_tool.errors import OptionError
+    from cfa_tool.workflows.factor_scores import score_with_saved_fit
+
     require_suffix("--output", args.output, ".csv", "the scores")
     outputs = [("--output", args.output), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown)]
-    check_files(args, outputs, [args.model, args.data])
-    result = scores(Path(args.model), args.data, methods=_methods(args.method), standard_errors=args.standard_errors,
-                    id_column=args.id, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
-                    missing_codes=args.missing_codes, keep=args.keep, ordinal=cli._ordinal_arg(args.ordinal),
-                    ordinal_estimator=args.ordinal_estimator, missing=args.missing, max_iterations=args.max_iterations)
+    check_files(args, outputs, [args.model, args.data, args.from_fit])
+    if args.from_fit:
+        given = getattr(args, "_given_options", set())
+        for dest, option in FITTING_OPTIONS:
+            if dest in given:
+                raise OptionError(f"{option} is about fitting the model, and with --from-fit the parameters come from "
+                                  f"the earlier fit (its groups too), so it cannot apply; remove it")
+        result = score_with_saved_fit(Path(args.model), args.from_fit, args.data, methods=_methods(args.method),
+                                      standard_errors=args.standard_errors, id_column=args.id, sheet=args.sheet,
+                                      missing_codes=args.missing_codes, keep=args.keep)
+    else:
+        result = scores(Path(args.model), args.data, methods=_methods(args.method), standard_errors=args.standard_errors,
+                        id_column=args.id, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
+                        missing_codes=args.missing_codes, keep=args.keep, ordinal=cli._ordinal_arg(args.ordinal),
+                        ordinal_estimator=args.ordinal_estimator, missing=args.missing,
+                        max_iterations=args.max_iterations)
     files = [("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")]
     if args.json:
         files.append(("--json", to_json(result), f"JSON result written to {args.json}"))

@@ -35,7 +35,8 @@ def header_lines(result) -> list[str]:
     fit = result.fit
     methods = ", ".join(METHOD_LABELS[m] for m in result.methods)
     first = f"{result.id_name}, then " if result.id_name else ""
-    return [f"Model file: {fit.model_source}", f"Data: {fit.data.source}; the model was fitted to {fit.n_obs} rows",
+    scored = [f"Scored data: {result.scored_source} (with the parameters of the fit above)"] if result.scored_source else []
+    return [f"Model file: {fit.model_source}", f"Data: {fit.data.source}; the model was fitted to {fit.n_obs} rows", *scored,
             f"Scores ({methods}) of {result.rows} rows, one per row of the data in the file's order; columns: "
             f"{first}one per factor" + (" with its standard error" if result.standard_errors else "")]
 

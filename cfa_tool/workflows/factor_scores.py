@@ -12,6 +12,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from enum import Enum
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
@@ -98,7 +99,7 @@ class OrdinalQuality:
 class ScoreResult:
     """Scores of every row of the data, with the fit they come from and their quality."""
 
-    fit: FitResult
+    fit: FitResult | SavedFit  # the fit the scores come from (an earlier one saved as JSON: SavedFit)
     methods: tuple[ScoreMethod, ...]
     factors: tuple[str, ...]
     id_name: str | None  # header of the id column of the output (None: no id column)
@@ -107,6 +108,7 @@ class ScoreResult:
     unscored: tuple[tuple[str, str, tuple[int, ...]], ...]  # (reason, method, rows without a score of each factor)
     standard_errors: bool
     notes: tuple[str, ...] = ()
+    scored_source: str | None = None  # the data scored, when they are not the data the model was fitted to
 
     @property
     def rows(self) -> int:
@@ -128,6 +130,7 @@ class ScoreResult:
             "methods": [m.value for m in self.methods],
             "factors": list(self.factors),
             "id_column": self.id_name,
+            "scored_data": self.scored_source,
             "columns": [str(c) for c in self.table.columns],
             "standard_errors": self.standard_errors,
             "unscored": [{"reason": r, "method": m, "rows": dict(zip(self.factors, map(int, counts)))}
@@ -318,11 +321,23 @@ def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bo
         raise EstimationError("the fitted solution is not admissible, so no factor scores are computed with it")
     chosen = method_option(methods)
     models, labels = models_of_fit(result)
+    return _score_other_data(result, _spec_of(result), models, labels, data, chosen, standard_errors, id_column, sheet,
+                             missing_codes, keep)
+
+
+def _score_other_data(result, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
+                      keep) -> ScoreResult:
+    """Rows of ``data`` scored with the given models (one per group of the earlier fit ``result``)."""
+    from cfa_tool import api
+    from cfa_tool.data.filters import apply_filters, parse_filter
+    from cfa_tool.data.matching import check_columns
+    from cfa_tool.data.row_ids import duplicate_note, row_ids
+
     loaded = api.load_data(data, sheet, missing_codes)
     read_frame, source = loaded.frame.set_axis([str(c) for c in loaded.frame.columns], axis=1), loaded.source
     if not read_frame.index.is_unique:
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index)")
-    check_columns(_spec_of(result), list(read_frame.columns), source)
+    check_columns(spec, list(read_frame.columns), source)
     group = result.group_column
     if group is not None and group not in read_frame.columns:
         raise OptionError(f"the fit has groups by '{printable(group)}', which is not a column of {source}")
@@ -374,7 +389,121 @@ def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bo
                     f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     return ScoreResult(result, chosen, tuple(factors), id_name, pd.DataFrame(columns), tuple(_linear_quality(models)),
-                       unscored, bool(standard_errors), tuple(notes))
+                       unscored, bool(standard_errors), tuple(notes), source)
+
+
+@dataclass(frozen=True, eq=False)
+class SavedFit:
+    """An earlier fit as its JSON result holds it: what the report of scores made with it shows."""
+
+    model_name: str
+    model_source: str
+    estimator: str
+    n_obs: int
+    data: object  # DataSummary
+    observed: tuple[str, ...]
+    problems: tuple
+    warnings: tuple[str, ...]
+    group_column: str | None
+    payload: dict = field(repr=False)
+
+    @property
+    def admissible(self) -> bool:
+        return bool(self.payload.get("converged")) and not any(p.kind.inadmissible for p in self.problems)
+
+    def to_dict(self) -> dict:
+        return {k: v for k, v in self.payload.items() if k not in ("tool", "version")}
+
+
+def read_saved_fit(path) -> SavedFit:
+    """A fit's JSON result (``fit --json``), checked to be one."""
+    import json
+
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.input_files import input_bytes
+    from cfa_tool.results import DataSummary
+
+    raw = input_bytes(Path(path), "fit result", OptionError, 200_000_000)
+    try:
+        payload = json.loads(raw.decode("utf-8"))
+        if payload.get("tool") != "cfa-tool" or "estimates" not in payload:
+            raise ValueError
+        d = payload["data"]
+        summary = DataSummary(str(d["source"]), int(d["rows_read"]), int(d["rows_dropped"]), int(d["n_obs"]),
+                              tuple(d["variables"]), tuple(float(v) for v in d["means"]), tuple(float(v) for v in d["sds"]))
+        problems = tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
+                                 q["advice"], q["group"]) for q in payload.get("problems", ()))
+        model = payload["model"]
+    except (ValueError, KeyError, TypeError, AttributeError, UnicodeDecodeError):
+        raise OptionError(f"'{printable(str(path))}' is not the JSON result of a fit by cfa-tool (fit --json)") from None
+    if "polychoric" in str(payload.get("estimator")):
+        raise OptionError("scoring new data with an earlier fit is available for continuous items only")
+    return SavedFit(str(model.get("name")), str(model.get("source")), str(payload.get("estimator")), int(payload["n_obs"]),
+                    summary, tuple(summary.variables), problems, tuple(payload.get("warnings", ())),
+                    payload.get("group_column"), payload)
+
+
+def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
+    """Each group's scoring model from ``spec`` (the model file the fit was made with) and the estimates of its
+    JSON result: every estimate is matched to its parameter in the model's table (the same kind, variables and
+    group, in the same order), the free parameters are read back, and every estimate is recomputed from them
+    (an error when anything differs: the result is of another model)."""
+    from cfa_tool.fitting import model_structure
+    from cfa_tool.scoring.model import scoring_model
+
+    estimates = saved.payload["estimates"]
+    multi = saved.group_column is not None
+    labels = tuple(g["name"] for g in saved.payload.get("groups", ())) if multi else None
+    mean_structure = multi or any(e.get("kind") == "intercept" for e in estimates)
+    table, model = model_structure(spec, labels, mean_structure)
+    another = OptionError(f"the fit result is not of the model {spec.source} (its estimates differ from the model's "
+                          f"parameters); give the model file the fit was made with")
+    if len(estimates) != len(table.parameters):
+        raise another
+    theta = np.full(table.n_free, np.nan)
+    values = []
+    for par, est in zip(table.parameters, estimates):
+        group = table.groups[par.group] if table.multigroup else None
+        if est.get("kind") != par.kind or tuple(est.get("variables", ())) != par.variables or est.get("group") != group:
+            raise another
+        value = est.get("estimate")
+        if not isinstance(value, (int, float)):
+            raise another
+        values.append(float(value))
+        if len(par.terms) == 1 and par.terms[0][1] != 0:
+            index, coefficient = par.terms[0]
+            theta[index] = (value - par.offset) / coefficient
+    if np.isnan(theta).any():
+        raise another
+    for par, value in zip(table.parameters, values):
+        again = par.offset + sum(c * theta[i] for i, c in par.terms)
+        if abs(again - value) > 1e-8 * (1.0 + abs(value)):
+            raise another
+    out = []
+    for g in range(table.n_groups):
+        means = None
+        if not mean_structure:
+            names = list(saved.data.variables)
+            means = np.array([saved.data.means[names.index(x)] for x in table.observed])
+        out.append(scoring_model(model.matrices(theta, g), table.observed, table.latent,
+                                 labels[g] if labels else None, means))
+    return out, list(labels) if labels else [None]
+
+
+def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_errors: bool = False,
+                         id_column: str | None = None, sheet: str | None = None, missing_codes=(), keep=()) -> ScoreResult:
+    """Scores of the rows of ``data`` with the parameters of a fit saved as JSON (``fit --json``) of ``model``."""
+    from cfa_tool import api
+
+    saved = read_saved_fit(saved_path)
+    if not saved.admissible:
+        raise EstimationError(f"the fit in '{printable(str(saved_path))}' is not admissible, so no factor scores are "
+                              f"computed with it")
+    spec = api.load_spec(model)
+    chosen = method_option(methods)
+    models, labels = models_of_saved_fit(spec, saved)
+    return _score_other_data(saved, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
+                             keep)
 
 
 def _spec_of(result: FitResult):
