@@ -56,12 +56,10 @@ def run(args: argparse.Namespace) -> int:
     from pathlib import Path
 
     from cfa_tool import cli
+    from cfa_tool.errors import OptionError
     from cfa_tool.reporting.json_report import to_json
     from cfa_tool.reporting.score_report import render_scores, scores_html_report, scores_markdown
-    from cfa_tool.workflows.factor_scores import scores
-
-    from cfa_tool.errors import OptionError
-    from cfa_tool.workflows.factor_scores import score_with_saved_fit
+    from cfa_tool.workflows.factor_scores import score_with_saved_fit, scores
 
     require_suffix("--output", args.output, ".csv", "the scores")
     outputs = [("--output", args.output), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown)]

@@ -38,7 +38,9 @@ def header_lines(result) -> list[str]:
     scored = [f"Scored data: {result.scored_source} (with the parameters of the fit above)"] if result.scored_source else []
     return [f"Model file: {fit.model_source}", f"Data: {fit.data.source}; the model was fitted to {fit.n_obs} rows", *scored,
             f"Scores ({methods}) of {result.rows} rows, one per row of the data in the file's order; columns: "
-            f"{first}one per factor" + (" with its standard error" if result.standard_errors else "")]
+            f"{first}one per factor" + ("" if not result.standard_errors else
+                                        " with its posterior standard deviation" if ScoreMethod.EXPECTED_A_POSTERIORI
+                                        in result.methods else " with its standard error")]
 
 
 def caution_lines(result) -> list[str]:
