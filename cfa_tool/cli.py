@@ -57,6 +57,8 @@ def build_parser() -> argparse.ArgumentParser:
     _add_data_options(fit)
     _add_group_options(fit, required=False)
     _add_output_options(fit)
+    fit.add_argument("--id", metavar="COLUMN", help="column that names each row (never analysed): the case tables show it "
+                                                    "beside the data-row number")
 
     check = sub.add_parser("check", help="parse a model and check it against the data without fitting")
     check.add_argument("model", metavar="MODEL", help="model file")
@@ -132,6 +134,9 @@ def build_parser() -> argparse.ArgumentParser:
 
     demo = sub.add_parser("demo", help="fit the bundled rider-experience demo and print the report")
     _add_output_options(demo)
+    from cfa_tool import commands
+
+    commands.add_parsers(sub)  # commands in modules of their own (cfa_tool/commands/)
     return parser
 
 
@@ -281,6 +286,10 @@ def _report_error(exc: CfaError) -> None:
 
 
 def _run(args: argparse.Namespace) -> int:
+    from cfa_tool import commands
+
+    if commands.handles(args.command):
+        return commands.run(args)
     if args.command == "demo":
         from cfa_tool.resources import resource_dir
 
@@ -593,7 +602,8 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
     result = fit(model, data, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
                  missing_codes=args.missing_codes, keep=args.keep, information=args.information,
                  mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=args.test,
-                 missing=args.missing, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
+                 missing=args.missing, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
+                 id_column=getattr(args, "id", None))
     return _emit(args, result, render)  # a model that does not converge raises EstimationError (exit 3)
 
 

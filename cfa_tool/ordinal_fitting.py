@@ -94,9 +94,10 @@ def _modification_rows(candidates: list[list], mi: np.ndarray, epc: np.ndarray, 
 # ---------------------------------------------------------------- one group
 
 
-def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted") -> FitResult:
-    """Least squares on polychoric correlations, with robust standard errors and adjusted tests."""
-    label = _check_method(method)
+def ordinal_spec(spec: Spec) -> tuple[Spec, set[str]]:
+    """The model a one-group ordinal fit estimates: the residual variances of the latent responses fixed
+    (they are not parameters: the latent responses have unit variance), and the items whose residual
+    variance follows from that."""
     user_fixed = {r.key() for s in spec.fixed for r in s.refs}
     for setting in spec.starts + tuple(spec.bounds):
         for ref in setting.refs:
@@ -105,7 +106,13 @@ def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted
     refs = tuple(ParameterRef("variance", (x,), spec.first_mention(x)) for x in spec.observed_names
                  if ("variance", (x,)) not in user_fixed)
     derived_items = {r.names[0] for r in refs}  # residual variances that follow from unit latent-response variances
-    fixed_spec = dc_replace(spec, fixed=spec.fixed + ((ValueSetting(refs, 1.0),) if refs else ()))
+    return dc_replace(spec, fixed=spec.fixed + ((ValueSetting(refs, 1.0),) if refs else ())), derived_items
+
+
+def fit_ordinal(spec: Spec, moments, options, method: str = "diagonally-weighted") -> FitResult:
+    """Least squares on polychoric correlations, with robust standard errors and adjusted tests."""
+    label = _check_method(method)
+    fixed_spec, derived_items = ordinal_spec(spec)
     table = build_parameter_table(fixed_spec)
     p = table.p
     n_corr = p * (p - 1) // 2

@@ -287,6 +287,14 @@ class FitResult:
         out["warnings"] = list(self.warnings)
         return out
 
+    def scores(self, data, **options):
+        """Factor scores of the rows of ``data`` (other data as well) with this fit's parameters; ``options``:
+        ``methods``, ``standard_errors``, ``id_column``, ``sheet``, ``missing_codes``, ``keep``
+        (see cfa_tool.workflows.factor_scores.score_with_fit)."""
+        from cfa_tool.workflows.factor_scores import score_with_fit
+
+        return score_with_fit(self, data, **options)
+
     def summary(self) -> str:
         from cfa_tool.reporting.terminal import render_text
 

@@ -166,7 +166,7 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
         )
 
 
-def _row_numbers(frame: pd.DataFrame) -> np.ndarray:
+def row_numbers(frame: pd.DataFrame) -> np.ndarray:
     """1-based data-row numbers: from the index when it counts rows (files, filtered files), else positions."""
     index = frame.index
     if isinstance(index, pd.RangeIndex) and index.start >= 0 and index.step == 1:  # the common case, without type checks
@@ -203,7 +203,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     centred = data - means
     cov = centred.T @ centred / n
     _check_moments(cov, means, names, source)
-    numbers = _row_numbers(frame) if every_row else _row_numbers(frame)[complete]
+    numbers = row_numbers(frame) if every_row else row_numbers(frame)[complete]
     return SampleMoments(tuple(names), cov, means, n, len(frame), len(frame) - n, file_source, group, data, numbers)
 
 

@@ -25,13 +25,16 @@ ul.warnings li{margin:.3em 0}
 .problems{background:#fdecea;border:2px solid #b3261e;padding:.6em 1em;margin:1em 0}
 .problems.caution-only{background:#fff7e6;border-color:#e0a030} .problems h2{border:none;margin:.2em 0;color:#b3261e}
 .problems li{margin:.35em 0} tr.problem td{background:#fdecea;color:#8c1d18;font-weight:bold}
+td.faint{color:#aaa}
 """
 
 
 def table_html(table: ReportTable) -> str:
     head = "".join(f'<th class="{a}">{esc(c)}</th>' for c, a in zip(table.columns, table.align))
+    faint = set(table.faint)
     body = "".join(('<tr class="problem">' if k in table.flagged else "<tr>")
-                   + "".join(f'<td class="{a}">{esc(v)}</td>' for v, a in zip(row, table.align)) + "</tr>"
+                   + "".join(f'<td class="{a}{" faint" if (k, j) in faint else ""}">{esc(v)}</td>'
+                             for j, (v, a) in enumerate(zip(row, table.align))) + "</tr>"
                    for k, row in enumerate(table.rows))
     note = f'<p class="note">{esc(table.note)}</p>' if table.note else ""
     return (f'<table id="{esc(table.key)}"><caption>{esc(table.title)}</caption><thead><tr>{head}</tr></thead>'

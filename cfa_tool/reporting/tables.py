@@ -45,6 +45,7 @@ class ReportTable:
     # text: None when every text cell already reads as a number
     value_columns: tuple[str, ...] | None = None
     values: tuple[tuple, ...] | None = None
+    faint: tuple[tuple[int, int], ...] = ()  # (row, column) cells shown faintly (e.g. small loadings)
 
 
 def _table(key: str, title: str, columns: list[tuple[str, str]], rows: list[list[str]], note: str | None = None,
@@ -488,12 +489,16 @@ def case_table(result, group: int = 0) -> ReportTable | None:
     cases = result.groups[group].influential_cases
     if not cases:
         return None
+    named = any(c.id is not None for c in cases)
+    ids = [[c.id or ""] if named else [] for c in cases[:5]]
     return _table(f"cases_{group}", "Rows that contribute most to the chi-square",
-                  [("Data row", "r"), ("Share of chi-square", "r"), ("Squared Mahalanobis distance", "r"), ("p", "r")],
-                  [[str(c.row), num(c.chi_square_share, 2), num(c.mahalanobis, 2), p_value(c.p_value)] for c in cases[:5]],
+                  [("Data row", "r")] + ([("Id", "l")] if named else [])
+                  + [("Share of chi-square", "r"), ("Squared Mahalanobis distance", "r"), ("p", "r")],
+                  [[str(c.row), *i, num(c.chi_square_share, 2), num(c.mahalanobis, 2), p_value(c.p_value)]
+                   for c, i in zip(cases[:5], ids)],
                   "Each row's share sums over all rows to the chi-square; large shares and distances point at rows worth checking.",
-                  values=(["Data row", "Share of chi-square", "Squared Mahalanobis distance", "p"],
-                          [[c.row, c.chi_square_share, c.mahalanobis, c.p_value] for c in cases[:5]]))
+                  values=(["Data row"] + (["Id"] if named else []) + ["Share of chi-square", "Squared Mahalanobis distance", "p"],
+                          [[c.row, *i, c.chi_square_share, c.mahalanobis, c.p_value] for c, i in zip(cases[:5], ids)]))
 
 
 def item_table(result) -> ReportTable:

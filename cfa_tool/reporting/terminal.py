@@ -40,8 +40,10 @@ def _table(title: str, columns: list[tuple[str, str]]) -> Table:
 
 def rich_table(report: ReportTable) -> Table:
     table = _table(report.title, [(c, "left" if a == "l" else "right") for c, a in zip(report.columns, report.align)])
+    faint = set(report.faint)
     for k, row in enumerate(report.rows):
-        table.add_row(*row, style="bold red" if k in report.flagged else None)
+        cells = [Text(v, style="dim") if (k, j) in faint else v for j, v in enumerate(row)]
+        table.add_row(*cells, style="bold red" if k in report.flagged else None)
     if report.note and report.key not in ("fit",):
         table.caption = report.note
         table.caption_justify = "left"
