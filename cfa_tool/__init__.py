@@ -1,7 +1,8 @@
 """cfa_tool: confirmatory factor analysis for questionnaire research.
 
-Entry points: :func:`fit` (fit a model to data) and :func:`check` (validate a
-model against data without fitting).  Heavy modules load on first use.
+Entry points: :func:`fit` (fit a model to data), :func:`check` (validate a
+model against data without fitting), :func:`scores` (factor scores of every row)
+and :func:`explore` (how many factors, an exploratory solution and a draft model).  Heavy modules load on first use.
 """
 
 from __future__ import annotations
@@ -9,7 +10,7 @@ from __future__ import annotations
 from cfa_tool import views
 from cfa_tool.version import __version__
 
-__all__ = ["fit", "check", "bootstrap", "cutoffs", "parse_model", "__version__"]
+__all__ = ["fit", "check", "bootstrap", "cutoffs", "scores", "explore", "parse_model", "__version__"]
 
 
 def _presenter():
@@ -18,7 +19,14 @@ def _presenter():
     return ReportPresenter()
 
 
+def _scorer():
+    from cfa_tool.workflows.factor_scores import score_with_fit
+
+    return score_with_fit
+
+
 views.install(_presenter)
+views.install_scorer(_scorer)
 
 
 def __getattr__(name: str):
@@ -34,6 +42,14 @@ def __getattr__(name: str):
         from cfa_tool.workflows.cutoffs import cutoffs
 
         return cutoffs
+    if name == "scores":
+        from cfa_tool.workflows.factor_scores import scores
+
+        return scores
+    if name == "explore":
+        from cfa_tool.workflows.explore import explore
+
+        return explore
     if name == "parse_model":
         from cfa_tool.language.parser import parse_model
 

@@ -58,6 +58,8 @@ def build_parser() -> argparse.ArgumentParser:
     _add_data_options(fit)
     _add_group_options(fit, required=False)
     _add_output_options(fit)
+    fit.add_argument("--id", metavar="COLUMN", help="column that names each row (never analysed): the case tables show it "
+                                                    "beside the data-row number")
 
     check = sub.add_parser("check", help="parse a model and check it against the data without fitting")
     check.add_argument("model", metavar="MODEL", help="model file")
@@ -81,7 +83,10 @@ def build_parser() -> argparse.ArgumentParser:
     _add_group_options(inv, required=True)
     inv.add_argument("--partial", choices=("none", "auto"), default="none",
                      help="'auto': when a step fails, free the constraint with the largest score test until it holds")
-    inv.add_argument("--alpha", type=float, default=0.05, help="level of the chi-square difference tests (default .05)")
+    inv.add_argument("--alpha", type=float, default=None, help="level of the chi-square difference tests (default .05)")
+    inv.add_argument("--decide-by", choices=tuple(m.value for m in _decision_rules()), default="difference-test",
+                     help="how each step is judged: the chi-square difference test (default), the change in CFI, RMSEA "
+                          "and SRMR against common-practice guides, or both")
     _add_ordinal_options(inv)
     _add_json_option(inv)
 
@@ -110,6 +115,8 @@ def build_parser() -> argparse.ArgumentParser:
     mc.add_argument("--n", type=int, required=True, help="sample size of each simulated data set")
     mc.add_argument("--replications", type=int, default=500, help="number of data sets (default 500)")
     mc.add_argument("--alpha", type=float, default=0.05, help="significance level (default .05)")
+    mc.add_argument("--population-from", metavar="RESULT", help="take the population values from an earlier fit of "
+                    "this model (the file written by 'fit --json')")
     _add_run_options(mc)
 
     sim = sub.add_parser("simulate", help="write data simulated from a model with population values")
@@ -119,6 +126,8 @@ def build_parser() -> argparse.ArgumentParser:
     sim.add_argument("--seed", type=int, default=1, help="random seed (default 1)")
     sim.add_argument("--categories", type=int, help="make ordinal items with this many categories")
     sim.add_argument("--missing", type=float, default=0.0, help="share of answers removed completely at random")
+    sim.add_argument("--population-from", metavar="RESULT", help="take the population values from an earlier fit of "
+                     "this model (the file written by 'fit --json')")
     _add_json_option(sim)
 
     _add_resampling_command(sub, "cutoffs", "fit-index cutoffs simulated for this model and sample size", 200,
@@ -126,6 +135,9 @@ def build_parser() -> argparse.ArgumentParser:
 
     demo = sub.add_parser("demo", help="fit the bundled rider-experience demo and print the report")
     _add_output_options(demo)
+    from cfa_tool import commands
+
+    commands.add_parsers(sub)  # commands in modules of their own (cfa_tool/commands/)
     return parser
 
 
@@ -183,7 +195,10 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
     _add_json_option(p)
     p.add_argument("--html", metavar="PATH", help="write a self-contained HTML report (tables, path diagram, methods paragraph)")
     p.add_argument("--markdown", metavar="PATH", help="write the report as Markdown")
+    p.add_argument("--docx", metavar="PATH", help="write the report as a Word document for a manuscript (numbered "
+                   "tables, methods paragraph, path diagram)")
     p.add_argument("--diagram", metavar="PATH", help="write the path diagram as SVG (or PNG when PATH ends in .png and a converter is installed)")
+    p.add_argument("--dpi", type=int, default=300, help="resolution of pictures (PNG diagram, Word figure; default 300)")
     p.add_argument("--tables", metavar="FOLDER", help="write every table as CSV and as LaTeX (booktabs) into FOLDER")
     p.add_argument("--information", choices=Information.words(), default=None,
                    help="information matrix for standard errors (default: expected; full-information ML uses observed)")
@@ -203,6 +218,12 @@ def _add_ordinal_options(p: argparse.ArgumentParser) -> None:
                    help="'all' or comma-separated items to treat as ordinal (thresholds and polychoric correlations)")
     p.add_argument("--ordinal-estimator", choices=Weighting.words(), default=None,
                    help="least squares for ordinal items (default diagonally-weighted)")
+
+
+def _decision_rules():
+    from cfa_tool.workflows.invariance import DecisionRule
+
+    return DecisionRule
 
 
 def _version() -> str:
@@ -266,6 +287,10 @@ def _report_error(exc: CfaError) -> None:
 
 
 def _run(args: argparse.Namespace) -> int:
+    from cfa_tool import commands
+
+    if commands.handles(args.command):
+        return commands.run(args)
     if args.command == "demo":
         from cfa_tool.resources import resource_dir
 
@@ -301,7 +326,8 @@ def _run(args: argparse.Namespace) -> int:
         from cfa_tool.workflows.invariance import invariance
 
         result = invariance(args.model, args.data, args.group, reference_group=args.reference_group,
-                            partial=args.partial, alpha=args.alpha, sheet=args.sheet, missing_codes=args.missing_codes,
+                            partial=args.partial, alpha=args.alpha, decide_by=args.decide_by, sheet=args.sheet,
+                            missing_codes=args.missing_codes,
                             keep=args.keep, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
         return _emit(args, result, render_invariance)
     if args.command == "replicate":
@@ -356,7 +382,8 @@ def _simulation_command(args: argparse.Namespace) -> int:
 
         from cfa_tool.output_files import write_file
 
-        simulated = simulate(read_model_file(args.model), args.n, args.seed, args.categories, args.missing)
+        simulated = simulate(read_model_file(args.model), args.n, args.seed, args.categories, args.missing,
+                             args.population_from)
         frame = simulated.frame
         if not args._stdout_taken:
             W.render_population(simulated, _console())
@@ -375,7 +402,7 @@ def _simulation_command(args: argparse.Namespace) -> int:
             from cfa_tool.workflows.montecarlo import monte_carlo_power
 
             result = monte_carlo_power(read_model_file(args.model), args.n, args.replications, args.seed, args.alpha,
-                                       args.workers, args.cluster, advance)
+                                       args.workers, args.cluster, advance, args.population_from)
             render = W.render_montecarlo
         elif args.command == "bootstrap":
             from cfa_tool.workflows.bootstrap import bootstrap
@@ -438,33 +465,54 @@ def _ordinal_arg(text: str | None):
     return "all" if text.strip() == "all" else [t.strip() for t in text.split(",") if t.strip()]
 
 
-REPORT_FILES = (("--json", "json"), ("--html", "html"), ("--markdown", "markdown"), ("--diagram", "diagram"),
-                ("--output", "output"))
+REPORT_FILES = (("--json", "json"), ("--html", "html"), ("--markdown", "markdown"), ("--docx", "docx"),
+                ("--diagram", "diagram"), ("--output", "output"))
 DIAGRAM_SUFFIXES = (".svg", ".png")
 
 
 def _inputs(args: argparse.Namespace) -> list[str]:
     """Every file the command reads: models, data, calibration and validation files."""
     names = [getattr(args, "model", None), *(getattr(args, "models", None) or ()),
-             getattr(args, "data", None), getattr(args, "calibration", None), getattr(args, "validation", None)]
+             getattr(args, "data", None), getattr(args, "calibration", None), getattr(args, "validation", None),
+             getattr(args, "population_from", None)]
     return [n for n in names if n]
+
+
+def _special_file(path: str) -> bool:
+    """A device or a named pipe (written directly, whatever its name)."""
+    import stat
+
+    try:
+        mode = Path(path).stat().st_mode
+    except OSError:
+        return False
+    return stat.S_ISCHR(mode) or stat.S_ISFIFO(mode)
 
 
 def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     """Every output of the run checked before any work (see cfa_tool.output_files)."""
     from cfa_tool.output_files import check_outputs
+    from cfa_tool.reporting.picture import png_converter, require_png_converter
 
     diagram = getattr(args, "diagram", None)
     if diagram and diagram != "-" and Path(diagram).suffix.lower() not in DIAGRAM_SUFFIXES:
         raise OptionError(f"--diagram: '{diagram}' must end in .svg or .png (the two formats the diagram is written in)")
     output = getattr(args, "output", None)
-    if output and output != "-" and Path(output).suffix.lower() != ".csv":
+    if output and output != "-" and Path(output).suffix.lower() != ".csv" and not _special_file(output):
         raise OptionError(f"--output: the simulated rows are written as CSV; give a file name ending in .csv, not "
                           f"'{printable(output)}'")
     outputs = [(option, getattr(args, attr, None)) for option, attr in REPORT_FILES]
     targets = check_outputs(outputs, inputs, [("--tables", getattr(args, "tables", None))])
     if diagram and diagram.lower().endswith(".png"):
-        _png_converter()
+        require_png_converter()
+    if getattr(args, "dpi", None) is not None:
+        from cfa_tool import options as check
+
+        args.dpi = check.whole_number("--dpi", args.dpi, 72, 1200)
+    if getattr(args, "docx", None) and png_converter() is None:  # said before the work, not after
+        from cfa_tool.reporting.docx_report import NO_PICTURE
+
+        print(f"cfa-tool: note: {NO_PICTURE}", file=sys.stderr)
     args._targets = targets
     args._stdout_taken = any(t.is_stdout for t in targets.values())
     return targets
@@ -478,6 +526,7 @@ def _say(args: argparse.Namespace, text: str) -> None:
 
 def _report_files(args: argparse.Namespace, result) -> list[tuple[str, object, str]]:
     """(option, content, message) of every report file asked for, made before anything is written."""
+    from cfa_tool.reporting.picture import svg_to_png
     files: list[tuple[str, object, str]] = []
     if getattr(args, "json", None):
         from cfa_tool.reporting.json_report import to_json
@@ -491,11 +540,15 @@ def _report_files(args: argparse.Namespace, result) -> list[tuple[str, object, s
         from cfa_tool.reporting.text_formats import markdown_report
 
         files.append(("--markdown", markdown_report(result), f"Markdown report written to {args.markdown}"))
+    if getattr(args, "docx", None):
+        from cfa_tool.reporting.docx_report import docx_report
+
+        files.append(("--docx", docx_report(result, args.dpi), f"Word report written to {args.docx}"))
     if getattr(args, "diagram", None):
         from cfa_tool.reporting.diagram import path_diagram
 
         svg = path_diagram(result)
-        content = _png_bytes(svg) if args.diagram.lower().endswith(".png") else svg
+        content = svg_to_png(svg, args.dpi) if args.diagram.lower().endswith(".png") else svg
         files.append(("--diagram", content, f"Path diagram written to {args.diagram}"))
     return files
 
@@ -503,36 +556,15 @@ def _report_files(args: argparse.Namespace, result) -> list[tuple[str, object, s
 def _table_files(args: argparse.Namespace, result) -> dict[str, str]:
     if not getattr(args, "tables", None):
         return {}
+    from cfa_tool.reporting import tables as T
     from cfa_tool.reporting.text_formats import all_tables, csv_table, latex_table
 
     files = {}
-    for table in all_tables(result):
+    problems = T.problem_table(result) if hasattr(result, "problems") else None
+    for table in ([problems] if problems is not None else []) + all_tables(result):
         files[f"{table.key}.csv"] = csv_table(table)
         files[f"{table.key}.tex"] = latex_table(table)
     return files
-
-
-def _png_converter() -> str:
-    import shutil
-
-    converter = shutil.which("rsvg-convert")
-    if converter is None:
-        raise OptionError("writing PNG needs the rsvg-convert program (Debian package librsvg2-bin); write .svg instead")
-    return converter
-
-
-def _png_bytes(svg: str) -> bytes:
-    import subprocess
-    import tempfile
-
-    with tempfile.TemporaryDirectory() as tmp:
-        source = Path(tmp) / "diagram.svg"
-        source.write_text(svg, encoding="utf-8")
-        out = Path(tmp) / "diagram.png"
-        done = subprocess.run([_png_converter(), "-o", str(out), str(source)], capture_output=True, text=True)
-        if done.returncode != 0 or not out.exists():
-            raise OptionError(f"the SVG-to-PNG converter failed: {done.stderr.strip()[:200]}")
-        return out.read_bytes()
 
 
 def _emit(args: argparse.Namespace, result, render) -> int:
@@ -569,7 +601,8 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
     result = fit(model, data, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
                  missing_codes=args.missing_codes, keep=args.keep, information=args.information,
                  mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=args.test,
-                 missing=args.missing, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
+                 missing=args.missing, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
+                 id_column=getattr(args, "id", None))
     return _emit(args, result, render)  # a model that does not converge raises EstimationError (exit 3)
 
 

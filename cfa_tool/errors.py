@@ -7,6 +7,8 @@ subclass; the command line prints its one-line message and exits with
 
 from __future__ import annotations
 
+from contextlib import contextmanager
+
 import re
 from dataclasses import dataclass
 
@@ -97,3 +99,13 @@ class EstimationError(CfaError):
     """The model could not be estimated (did not converge, not identified)."""
 
     exit_code = 3
+
+
+@contextmanager
+def estimation_of(what: str):
+    """Name which model or sample an estimation failure belongs to, when a command fits several:
+    'model two_factor: the model is not identified ...'."""
+    try:
+        yield
+    except EstimationError as exc:
+        raise EstimationError(f"{what}: {exc}") from None

@@ -55,6 +55,7 @@ class Target:
     given: str
     direct: bool  # '-' or a special file: written in place, never renamed over
     pipe: int | None = None  # a named pipe's descriptor, opened (and its reader found) before the work
+    new_only: bool = False  # may not replace any existing file (see check_new_file)
 
     @property
     def is_stdout(self) -> bool:
@@ -217,6 +218,21 @@ def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path
     return targets
 
 
+def check_new_file(target: Target) -> Target:
+    """The target of an output that never replaces an existing file, even one that is not an input (a file a
+    researcher edits after the run, such as a draft model): an error now when the file exists, and written
+    later without replacing a file that appeared in between.  Standard output and special files (written in
+    place, never replaced) pass."""
+    from dataclasses import replace
+
+    if target.is_stdout or target.direct:
+        return target
+    if os.path.lexists(target.given):
+        raise OptionError(f"{target.option}: '{shown(target.given)}' exists, and this output never replaces a file; "
+                          f"choose a new name or move that file")
+    return replace(target, new_only=True)
+
+
 def check_folder(option: str, folder: str) -> None:
     if not folder or "\x00" in folder:
         raise OptionError(f"{option}: the folder name is empty or holds a NUL character")
@@ -250,10 +266,10 @@ def write_file(target: Target | str | Path, content: str | bytes) -> None:
         except OSError as exc:
             raise OptionError(f"{target.option}: cannot write '{shown(target.given)}' ({exc.strerror or exc})") from None
         return
-    _replace_atomically(Path(os.path.realpath(target.given)), data, target.option)
+    _replace_atomically(Path(os.path.realpath(target.given)), data, target.option, target.new_only)
 
 
-def _replace_atomically(real: Path, data: bytes, option: str) -> None:
+def _replace_atomically(real: Path, data: bytes, option: str, new_only: bool = False) -> None:
     folder = real.parent
     try:
         mode = stat.S_IMODE(real.stat().st_mode)
@@ -269,7 +285,15 @@ def _replace_atomically(real: Path, data: bytes, option: str) -> None:
             handle.write(data)
         if mode is not None:
             os.chmod(tmp, mode)  # a replaced file keeps its permissions
-        os.replace(tmp, real)
+        if new_only:  # a hard link never replaces a file: it fails when the name exists
+            try:
+                os.link(tmp, real)
+            except FileExistsError:
+                raise OptionError(f"{option}: '{shown(real)}' was created by another program during the run, and "
+                                  f"this output never replaces a file; nothing was written there") from None
+            os.unlink(tmp)
+        else:
+            os.replace(tmp, real)
     except BaseException as exc:
         try:
             os.unlink(tmp)

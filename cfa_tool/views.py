@@ -46,3 +46,19 @@ class Presentable:
 
     def __str__(self) -> str:
         return self.summary()
+
+
+_scorer_loader: Callable[[], Callable] | None = None
+
+
+def install_scorer(loader: Callable[[], Callable]) -> None:
+    """Make ``loader()`` the source of the function that scores data with a fit's parameters (the package's
+    top module installs the workflow that does it, which sits above the result objects)."""
+    global _scorer_loader
+    _scorer_loader = loader
+
+
+def scorer() -> Callable:
+    if _scorer_loader is None:  # pragma: no cover - the package's top module always installs one
+        raise RuntimeError("no scorer is installed; import cfa_tool first")
+    return _scorer_loader()

@@ -49,7 +49,7 @@ def _assert_user_error(proc: subprocess.CompletedProcess, code: int, *words: str
 def test_fit_prints_report_and_writes_json(workdir):
     proc = run("fit", "rider.cfa", "--data", "rider.csv", "--json", "out.json", cwd=workdir)
     assert proc.returncode == 0, proc.stderr
-    for heading in ("Model fit", "Loadings", "Residual (error) variances", "Largest modification indices", "not laws"):
+    for heading in ("Model fit", "Loading", "Factor variances and correlations", "Largest modification indices", "not laws"):
         assert heading in proc.stdout
     result = json.loads((workdir / "out.json").read_text())
     assert set(result) >= {"converged", "estimator", "n_obs", "fit", "estimates", "modification_indices", "warnings"}
@@ -58,7 +58,7 @@ def test_fit_prints_report_and_writes_json(workdir):
         "aic", "bic", "sabic", "baseline_chi_square", "baseline_df", "n_free_parameters"}
     row = result["estimates"][0]
     assert set(row) == {"kind", "variables", "group", "free", "estimate", "se", "z", "p_value", "ci95", "standardized",
-                        "standardized_latent"}
+                        "standardized_factors_only"}
     # 9 of the demo's 480 rows miss an answer: by default every row is used, by full-information ML
     assert result["n_obs"] == 480 and result["converged"] is True
     assert "full information" in result["estimator"]

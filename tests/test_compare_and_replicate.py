@@ -95,7 +95,7 @@ def test_cli_compare_invariance_replicate_json(tmp_path):
     out = json.loads(proc.stdout)
     assert [s["level"] for s in out["steps"]] == ["configural", "metric", "scalar", "strict"]
     assert set(out["steps"][1]["versus_previous"]) == {"chi_square_difference", "df_difference", "p_value", "method",
-                                                      "delta_cfi", "delta_rmsea"}
+                                                      "delta_cfi", "delta_rmsea", "delta_srmr"}
     assert "freed" in out
 
     proc = run("replicate", str(MODEL), "--data", str(DATA), "--seed", "3", "--json", "-")
@@ -120,9 +120,9 @@ def test_compare_from_a_summary_statistics_file(tmp_path, hs_data):
     # the Holzinger-Swineford covariance matrix as a .stats file gives the same 226.958 on 3 df
     items = [f"x{i}" for i in range(1, 10)]
     cov = np.cov(hs_data[items].to_numpy().T)
-    rows = "\n".join(" ".join(f"{cov[i, j]:.12g}" for j in range(i + 1)) for i in range(9))
+    rows = "\n".join(items[i] + "," + ",".join(f"{cov[i, j]:.12g}" for j in range(i + 1)) for i in range(9))
     path = tmp_path / "hs.stats"
-    path.write_text(f"variables: {' '.join(items)}\nobservations: 301\nmatrix: covariance\nvalues:\n{rows}\n")
+    path.write_text(f"covariance,{','.join(items)}\n{rows}\nn,301\n")
     result = compare([ONE_FACTOR, THREE_FACTORS], str(path))
     (test,) = result.tests
     assert test.chi_square_difference == pytest.approx(226.958, abs=2e-3) and test.df_difference == 3
@@ -132,6 +132,6 @@ def test_raw_data_commands_refuse_summary_statistics(tmp_path):
     from cfa_tool.workflows.bootstrap import bootstrap
 
     path = tmp_path / "s.stats"
-    path.write_text("variables: a b c\nobservations: 100\nmatrix: correlation\nvalues:\n1\n.5 1\n.4 .45 1\n")
+    path.write_text("correlation,a,b,c\na,1\nb,.5,1\nc,.4,.45,1\nn,100\n")
     with pytest.raises(OptionError, match="holds summary statistics"):
         bootstrap("factor f: a, b, c\n", path, replications=10)

@@ -80,10 +80,11 @@ def test_missing_codes_in_a_plain_file(tmp_path, hs_items):
     assert result.n_obs == 297
 
 
-def _lower_triangle_file(tmp_path, cov: np.ndarray, n: int, names: list[str], extra: str = "") -> str:
-    rows = "\n".join(" ".join(f"{cov[i, j]:.12g}" for j in range(i + 1)) for i in range(len(names)))
-    path = tmp_path / "hs.stats"
-    path.write_text(f"# published matrix\nvariables: {' '.join(names)}\nobservations: {n}\nmatrix: covariance\n{extra}values:\n{rows}\n")
+def _lower_triangle_file(tmp_path, cov: np.ndarray, n: int, names: list[str], extra: str = "",
+                         suffix: str = ".stats") -> str:
+    rows = "\n".join(names[i] + "," + ",".join(f"{cov[i, j]:.12g}" for j in range(i + 1)) for i in range(len(names)))
+    path = tmp_path / f"hs{suffix}"
+    path.write_text(f"# published matrix\ncovariance,{','.join(names)}\n{rows}\nn,{n}\n{extra}")
     return str(path)
 
 
@@ -97,6 +98,25 @@ def test_summary_statistics_file_reproduces_the_raw_fit(tmp_path, hs_items, hs_t
     for a, b in zip(result.estimates, hs_three.estimates):
         assert a.estimate == pytest.approx(b.estimate, rel=1e-7, abs=1e-10)
         assert a.se == pytest.approx(b.se, rel=1e-7) or not a.free
+
+
+def test_summary_statistics_as_csv_with_semicolons_sds_and_means(tmp_path, hs_items, hs_three):
+    # the correlation matrix with standard deviations and means, as a spreadsheet in a decimal-comma locale
+    # writes it (semicolons, decimal commas, empty cells right of the triangle): the same fit as the raw data
+    corr = hs_items[ITEMS].corr().to_numpy()
+    sds = hs_items[ITEMS].std().to_numpy()
+    means = hs_items[ITEMS].mean().to_numpy()
+    comma = lambda v: f"{v:.12g}".replace(".", ",")  # noqa: E731
+    lines = ["correlation;" + ";".join(ITEMS)]
+    lines += [ITEMS[i] + ";" + ";".join(comma(corr[i, j]) for j in range(i + 1)) + ";" * (8 - i) for i in range(9)]
+    lines += ["n;301", "sd;" + ";".join(comma(v) for v in sds), "mean;" + ";".join(comma(v) for v in means)]
+    path = tmp_path / "published.csv"
+    path.write_text("\n".join(lines) + "\n")
+    result = cfa_tool.fit(THREE_FACTORS, str(path))
+    assert result.fit.chi_square == pytest.approx(hs_three.fit.chi_square, rel=1e-8)
+    divisor_n = _lower_triangle_file(tmp_path, np.cov(hs_items[ITEMS].to_numpy().T, bias=True), 301, ITEMS,
+                                     extra="divisor,n\n", suffix=".csv")
+    assert cfa_tool.fit(THREE_FACTORS, divisor_n).fit.chi_square == pytest.approx(hs_three.fit.chi_square, rel=1e-8)
 
 
 def test_summary_statistics_from_python(hs_items, hs_three):
@@ -121,13 +141,17 @@ def test_correlation_matrix_without_sds_is_fitted_with_a_note(hs_items, hs_three
 @pytest.mark.parametrize(
     "content, words",
     [
-        ("variables: a b c\nobservations: 100\nmatrix: covariance\nvalues:\n1\n0.5 1\n", "2 rows for 3 variables"),
-        ("variables: a b c\nobservations: 100\nmatrix: covariance\nvalues:\n1\n0.5 1 3\n0.1 0.2 1\n", "row 2 of the matrix has 3 numbers"),
-        ("variables: a b c\nobservations: ten\nmatrix: covariance\nvalues:\n1\n.5 1\n.4 .3 1\n", "whole number"),
-        ("variables: a b c\nobservations: 100\nmatrix: covariance\nvalues:\n1\n.5 x\n.4 .3 1\n", "'x' is not a number"),
-        ("variables: a b c\nmatrix: covariance\nvalues:\n1\n.5 1\n.4 .3 1\n", "no 'observations:' line"),
-        ("variables: a b c\nobservations: 100\nmatrix: correlation\nvalues:\n2\n.5 1\n.4 .3 1\n", "ones on its diagonal"),
-        ("variables: a b c\nobservations: 100\nsize: 3\n", "expected one of"),
+        ("covariance,a,b,c\na,1\nb,0.5,1\nn,100\n", "the matrix has 2 rows for 3 variables"),
+        ("covariance,a,b,c\na,1\nb,0.5,1,3\nc,0.1,0.2,1\nn,100\n", "row 2 of the matrix has 3 numbers"),
+        ("covariance,a,b,c\na,1\nb,.5,1\nc,.4,.3,1\nn,ten\n", "one whole number"),
+        ("covariance,a,b,c\na,1\nb,.5,x\nc,.4,.3,1\nn,100\n", "'x' is not a number"),
+        ("covariance,a,b,c\na,1\nb,.5,1\nc,.4,.3,1\n", "no 'n' row"),
+        ("correlation,a,b,c\na,2\nb,.5,1\nc,.4,.3,1\nn,100\n", "ones on its diagonal"),
+        ("covariance,a,b,c\na,1\nc,.5,1\nb,.4,.3,1\nn,100\n", "row 2 of the matrix is named 'c'"),
+        ("covariance,a,b,c\na,1\nb,.5,1\nc,.4,.3,1\nn,100\nn,100\n", "the 'n' row is given twice"),
+        ("matrix,a,b,c\n", "the first cell must say what the matrix holds"),
+        ("variables: a b c\nobservations: 100\nmatrix: covariance\nvalues:\n1\n.5 1\n.4 .3 1\n",
+         "earlier keyword form of a summary-statistics file; write it as comma-separated lines"),
     ],
 )
 def test_summary_statistics_errors(tmp_path, content, words):

@@ -28,7 +28,7 @@ LAYERS: tuple[tuple[str, tuple[str, ...]], ...] = (
     ("pipeline", ("pipeline", "exploration")),
     ("workflows", ("workflows", "scoring")),
     ("reporting", ("reporting", "output_files")),
-    ("command line", ("cli", "__main__", "")),  # "": the package's top module, the public entry points
+    ("command line", ("cli", "__main__", "commands", "")),  # "": the package's top module, the public entry points
 )
 
 

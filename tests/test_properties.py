@@ -115,7 +115,8 @@ def test_heywood_case_is_reported():
     z = (z - z.mean(0)) @ np.linalg.inv(np.linalg.cholesky(np.cov(z.T, bias=True))).T
     data = pd.DataFrame(z @ np.linalg.cholesky(corr).T, columns=["y1", "y2", "y3"])
     result = cfa_tool.fit("factor f: y1, y2, y3\n", data)
-    assert any("residual (error) variance of y1 is negative" in w for w in result.warnings)
+    assert not result.admissible
+    assert any("residual (error) variance of y1 is negative" in p.explanation for p in result.problems)
     resid = [r.estimate for r in result.estimates if r.variables == ("y1",)][0]
     assert resid == pytest.approx(1.0 - 0.8 * 0.8 / 0.5, abs=1e-6)
 

@@ -50,8 +50,8 @@ def _count(pattern: str, text: str) -> int:
 def test_html_report_has_every_section_and_no_external_assets(demo_result):
     page = html_report(demo_result)
     f = demo_result.fit
-    for words in ("Summary for a paper", "Path diagram", "Model fit", "Loadings", "Factor covariances", "Residual correlations",
-                  "Largest modification indices", "Items (analysed rows)", "not laws", "licensed professional",
+    for words in ("Summary for a paper", "Path diagram", "Model fit", "Factor ", "Factor variances and correlations", "Residual correlations",
+                  "Largest modification indices", "Items: descriptive statistics (analysed rows)", "Correlations of the items", "not laws", "licensed professional",
                   f"\u03c7\u00b2({f.df}) = {f.chi_square:.2f}"):
         assert words in page, words
     assert "<script" not in page
@@ -115,7 +115,7 @@ def test_methods_paragraph_reports_the_numbers(demo_result):
 
 def test_notebook_display(demo_result):
     fragment = demo_result._repr_html_()
-    assert fragment.startswith("<table") and "Loadings" in fragment and "<html" not in fragment
+    assert fragment.startswith('<p class="note">N = 480 rows analysed') and "Error variance" in fragment and "<html" not in fragment
 
 
 def test_cli_writes_every_report(tmp_path):
@@ -125,9 +125,10 @@ def test_cli_writes_every_report(tmp_path):
     assert (tmp_path / "r.html").read_text().startswith("<!DOCTYPE html>")
     assert (tmp_path / "d.svg").read_text().startswith("<svg")
     assert "Model fit" in (tmp_path / "r.md").read_text()
-    loadings = (tmp_path / "tables" / "loading.csv").read_text().splitlines()
-    assert loadings[0].startswith("Factor,Indicator,Estimate")
-    assert "\\toprule" in (tmp_path / "tables" / "loading.tex").read_text()
+    loadings = (tmp_path / "tables" / "factor_1.csv").read_text().splitlines()
+    assert loadings[0].startswith("Item,Standardized loading,Loading,SE,z,p")
+    assert "\\toprule" in (tmp_path / "tables" / "factor_1.tex").read_text()
+    assert (tmp_path / "tables" / "factors.csv").read_text().startswith("Factor,With,Estimate")
     assert not list(tmp_path.glob(".*.tmp"))
 
 
@@ -209,3 +210,53 @@ def test_methods_paragraph_states_missing_data_handling_and_groups(hs_data):
     assert "30 of 301 rows with missing answers were excluded listwise" in listwise and "N = 271" in listwise
     grouped = methods_paragraph(cfa_tool.fit(HS_BASE + "invariant loadings\n", hs_data, group="school"))
     assert "in 2 groups defined by school" in grouped and "Held equal across groups: loadings." in grouped
+
+
+def test_csv_tables_hold_numbers(demo_result, tmp_path):
+    from cfa_tool.reporting import tables as T
+    from cfa_tool.reporting.text_formats import csv_table
+
+    loading = pd.read_csv(pd.io.common.StringIO(csv_table(T.estimate_tables(demo_result)[0])))
+    for column in ("Standardized loading", "Loading", "SE", "z", "p", "95% CI lower", "95% CI upper", "R²",
+                   "Error variance"):
+        assert pd.api.types.is_float_dtype(loading[column]), column
+    free = [r for r in demo_result.estimates if r.kind == "loading" and r.free
+            and r.variables[0] == demo_result.latent[0]]
+    row = loading[loading["Item"] == free[0].variables[1]].iloc[0]
+    assert row["p"] == free[0].p_value and row["95% CI upper"] == free[0].ci95[1]  # full precision, not '< .001'
+    fit = pd.read_csv(pd.io.common.StringIO(csv_table(T.fit_table(demo_result))))
+    chi = fit[fit["Index"] == "Chi-square"].iloc[0]
+    assert chi["Value"] == demo_result.fit.chi_square and chi["df"] == demo_result.fit.df
+
+
+def test_latex_tables_are_plain_ascii_with_macros(demo_result):
+    tex = latex_tables(demo_result)
+    assert all(ord(ch) < 128 for ch in tex), sorted({ch for ch in tex if ord(ch) >= 128})
+    assert r"R\textsuperscript{2}" in tex
+    assert latex_text("\u03c7\u00b2 \u2265 .95") == r"$\chi$\textsuperscript{2} $\geq$ .95"
+
+
+@pytest.mark.parametrize("model", ["demo", "heywood", "groups"])
+def test_terminal_report_fits_80_columns(model, demo_result, hs_data):
+    from cfa_tool.reporting.terminal import render_text
+
+    three = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+    result = {"demo": lambda: demo_result,
+              "heywood": lambda: cfa_tool.fit(three + "covary x7, x8\ncovary x8, x9\n", hs_data),
+              "groups": lambda: cfa_tool.fit(three, hs_data, group="school")}[model]()
+    text = render_text(result, width=80)
+    assert max(len(line) for line in text.splitlines()) <= 80
+
+
+def test_workflow_commands_fit_80_columns(tmp_path, hs_data, monkeypatch):
+    monkeypatch.setenv("COLUMNS", "80")  # the width of a terminal the output is not connected to
+    data = tmp_path / "hs.csv"
+    hs_data.to_csv(data, index=False)
+    three = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+    (tmp_path / "a.cfa").write_text(three)
+    (tmp_path / "b.cfa").write_text(three + "covary x7, x8\n")
+    for args in (["compare", str(tmp_path / "a.cfa"), str(tmp_path / "b.cfa"), "--data", str(data)],
+                 ["invariance", str(tmp_path / "a.cfa"), "--data", str(data), "--group", "school"]):
+        proc = run(*args)
+        assert proc.returncode == 0, proc.stderr
+        assert max(len(line) for line in proc.stdout.splitlines()) <= 80, args[0]

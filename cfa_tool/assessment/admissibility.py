@@ -18,25 +18,43 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.model.implied import ModelMatrices
+from cfa_tool.model.parameters import ParameterTable
 
 
 class ProblemKind(enum.Enum):
-    NOT_CONVERGED = "not converged"
-    NEGATIVE_RESIDUAL_VARIANCE = "negative residual variance"
-    NEGATIVE_FACTOR_VARIANCE = "negative factor variance"
-    FACTOR_CORRELATION_BEYOND_ONE = "factor correlation beyond +/-1"
-    RESIDUAL_CORRELATION_BEYOND_ONE = "residual correlation beyond +/-1"
-    FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE = "factor covariance matrix not positive definite"
-    RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE = "residual covariance matrix not positive definite"
-    STANDARDIZED_LOADING_ABOVE_ONE = "standardized loading above 1"
-    ON_BOUND = "estimate on a bound"
-    EMPIRICALLY_UNDERIDENTIFIED = "empirically under-identified"
+    """What is wrong; ``value`` is the word the JSON uses, ``short`` the words a table row shows, and
+    ``inadmissible`` says whether the solution is impossible (True) or only needs a caution (False)."""
+
+    def __new__(cls, word: str, short: str, inadmissible: bool):
+        member = object.__new__(cls)
+        member._value_ = word
+        member.short = short
+        member.inadmissible = inadmissible
+        return member
+
+    NOT_CONVERGED = ("not converged", "not converged", True)
+    NEGATIVE_RESIDUAL_VARIANCE = ("negative residual variance", "negative variance: impossible", True)
+    NEGATIVE_FACTOR_VARIANCE = ("negative factor variance", "negative variance: impossible", True)
+    FACTOR_CORRELATION_BEYOND_ONE = ("factor correlation beyond +/-1", "correlation beyond +/-1: impossible", True)
+    RESIDUAL_CORRELATION_BEYOND_ONE = ("residual correlation beyond +/-1", "correlation beyond +/-1: impossible", True)
+    FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE = ("factor covariance matrix not positive definite",
+                                                "in a matrix that is not positive definite", True)
+    RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE = ("residual covariance matrix not positive definite",
+                                                  "in a matrix that is not positive definite", True)
+    # with cross-loadings or correlated factors a standardized loading above 1 is possible (Joreskog 1999)
+    STANDARDIZED_LOADING_ABOVE_ONE = ("standardized loading above 1", "standardized above 1", False)
+    ON_BOUND = ("estimate on a bound", "held at a bound", True)
+    EMPIRICALLY_UNDERIDENTIFIED = ("empirically under-identified", "barely determined by the data", True)
 
 
 @dataclass(frozen=True)
 class Problem:
+    """One problem of a solution.  ``parameters`` are parameter labels as the parameter table writes them
+    (``residual_variance(x9)``, ``factor_covariance(F1, F2)``, ``loading(F1, x1)``); ``group`` names the
+    group when the model has several."""
+
     kind: ProblemKind
-    parameters: tuple[str, ...]  # labels such as 'variance(x9)' (with ' in group g' when there are groups)
+    parameters: tuple[str, ...]
     value: float | None
     explanation: str
     advice: str
@@ -44,12 +62,55 @@ class Problem:
 
     def to_dict(self) -> dict:
         value = None if self.value is None or not np.isfinite(self.value) else float(self.value)
-        return {"kind": self.kind.value, "parameters": list(self.parameters), "value": value, "group": self.group,
-                "explanation": self.explanation, "advice": self.advice}
+        return {"kind": self.kind.value, "inadmissible": self.kind.inadmissible, "parameters": list(self.parameters),
+                "value": value, "group": self.group, "explanation": self.explanation, "advice": self.advice}
+
+    def phrase(self) -> str:
+        """The problem in the words of a methods paragraph, e.g. 'a negative residual variance of x9 (-1.02)'."""
+        names = _names(self.parameters[0]) if self.parameters else ()
+        v = f"{self.value:.2f}" if self.value is not None and np.isfinite(self.value) else ""
+        K = ProblemKind
+        text = {
+            K.NOT_CONVERGED: "the estimation did not converge",
+            K.NEGATIVE_RESIDUAL_VARIANCE: f"a negative residual variance of {', '.join(names)} ({v})",
+            K.NEGATIVE_FACTOR_VARIANCE: f"a negative variance of factor {', '.join(names)} ({v})",
+            K.FACTOR_CORRELATION_BEYOND_ONE: f"a correlation of factors {' and '.join(names)} of {v}",
+            K.RESIDUAL_CORRELATION_BEYOND_ONE: f"a residual correlation of {' and '.join(names)} of {v}",
+            K.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE: "a factor covariance matrix that is not positive definite",
+            K.RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE: "a residual covariance matrix that is not positive definite",
+            K.STANDARDIZED_LOADING_ABOVE_ONE: f"a standardized loading of {names[-1] if names else ''} above 1 ({v})",
+            K.ON_BOUND: f"{', '.join(self.parameters)} held at a bound",
+            K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
+        }[self.kind]
+        return text + (f" in group {self.group}" if self.group is not None else "")
+
+    def touches(self, kind: str, variables: tuple[str, ...], group: str | None = None) -> bool:
+        """Whether the parameter ``kind(variables)`` (of ``group``) is one of this problem's.  Covariances
+        match whichever order their two variables were written in."""
+        if self.group is not None and group is not None and self.group != group:
+            return False
+        ordered = kind in ("loading", "threshold")
+        for label in self.parameters:
+            if label.endswith("]") and " [" in label:  # a free parameter's label names its group
+                label, _, owner = label[:-1].rpartition(" [")
+                if group is not None and owner != group:
+                    continue
+            k, names = label.partition("(")[0], _names(label)
+            if k == kind and (names == tuple(variables) if ordered else sorted(names) == sorted(variables)):
+                return True
+        return False
 
     def one_line(self) -> str:
         where = f" (group {self.group})" if self.group is not None else ""
         return f"{self.explanation}{where} {self.advice}"
+
+
+def _names(label: str) -> tuple[str, ...]:
+    """The variables of a parameter label such as 'factor_covariance(F1, F2)' (a group suffix dropped)."""
+    if label.endswith("]") and " [" in label:
+        label = label[:-1].rpartition(" [")[0]
+    rest = label.partition("(")[2]
+    return tuple(n.strip() for n in rest.rstrip(")").split(",")) if rest else ()
 
 
 HEYWOOD_ADVICE = ("Look for what the model leaves out near it (a residual covariance or cross-loading the modification "
@@ -73,7 +134,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
         theta = mats.T[i, i]
         if theta < 0:
             r2 = 1.0 - theta / total[i] if total[i] > 0 else float("nan")
-            label = f"variance({x})"
+            label = f"residual_variance({x})"
             se = se_of.get(label)
             chance = (f" Its standard error is {_fmt(se)}, so it is {'not ' if theta / se > -1.96 else ''}clearly below "
                       f"zero (z = {theta / se:.2f}).") if se and np.isfinite(se) and se > 0 else ""
@@ -85,7 +146,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
     for j, f in enumerate(latent):
         if mats.P[j, j] < 0:
             out.append(Problem(
-                ProblemKind.NEGATIVE_FACTOR_VARIANCE, (f"variance({f})",), float(mats.P[j, j]),
+                ProblemKind.NEGATIVE_FACTOR_VARIANCE, (f"factor_variance({f})",), float(mats.P[j, j]),
                 f"The variance of factor {f} is negative ({_fmt(mats.P[j, j])}): impossible for a real trait.",
                 "Check that its indicators measure one thing (their correlations should be clearly positive after "
                 "reversing reverse-keyed items) and that the factor has enough indicators.", group))
@@ -97,14 +158,14 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
             for j in range(i):
                 if abs(corr[i, j]) > 1.0:
                     out.append(Problem(
-                        ProblemKind.FACTOR_CORRELATION_BEYOND_ONE, (f"covariance({latent[j]}, {latent[i]})",),
+                        ProblemKind.FACTOR_CORRELATION_BEYOND_ONE, (f"factor_covariance({latent[j]}, {latent[i]})",),
                         float(corr[i, j]),
                         f"The correlation of factors {latent[j]} and {latent[i]} is {corr[i, j]:.3f}, beyond +/-1: impossible.",
-                        "The two factors are not distinct in these data: consider one factor for both items sets, or "
+                        "The two factors are not distinct in these data: consider one factor for both item sets, or "
                         "look for cross-loadings and residual covariances that the model leaves out.", group))
         if not any(p.kind is ProblemKind.FACTOR_CORRELATION_BEYOND_ONE for p in out) and np.linalg.eigvalsh(phi)[0] < 0:
             out.append(Problem(
-                ProblemKind.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(f"variance({f})" for f in latent),
+                ProblemKind.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(f"factor_variance({f})" for f in latent),
                 float(np.linalg.eigvalsh(corr)[0]),
                 "The factor covariance matrix is not positive definite (its smallest eigenvalue is below zero): some "
                 "combination of the factors would have a negative variance.",
@@ -117,7 +178,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
             r = mats.T[i, j] / np.sqrt(t_diag[i] * t_diag[j])
             if abs(r) > 1.0:
                 out.append(Problem(
-                    ProblemKind.RESIDUAL_CORRELATION_BEYOND_ONE, (f"covariance({observed[j]}, {observed[i]})",), float(r),
+                    ProblemKind.RESIDUAL_CORRELATION_BEYOND_ONE, (f"residual_covariance({observed[j]}, {observed[i]})",), float(r),
                     f"The residual correlation of {observed[j]} and {observed[i]} is {r:.3f}, beyond +/-1: impossible.",
                     "The residual covariance leaves the two items' residuals more alike than identical; remove it or "
                     "model what the two items share as a factor.", group))
@@ -125,7 +186,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
         scale = 1.0 / np.sqrt(t_diag)
         if np.linalg.eigvalsh(mats.T * np.outer(scale, scale))[0] < -1e-10:
             out.append(Problem(
-                ProblemKind.RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(f"covariance({observed[j]}, {observed[i]})"
+                ProblemKind.RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(f"residual_covariance({observed[j]}, {observed[i]})"
                                                                                for i, j in off), None,
                 "The residual covariance matrix is not positive definite: the residual covariances together imply a "
                 "negative variance for some combination of the items.",
@@ -183,6 +244,34 @@ def not_converged(message: str, max_iterations: int) -> Problem:
                    f"the iteration limit (now {max_iterations}).")
 
 
-def admissibility_warnings(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[str, ...]) -> list[str]:
-    """The same assessment as one line per problem (for notes)."""
-    return [p.explanation for p in matrix_problems(mats, observed, latent)]
+def solution_problems(table: ParameterTable, mats: list[ModelMatrices], theta: np.ndarray,
+                      cov_theta: np.ndarray | None, converged: bool, message: str, max_iterations: int,
+                      standardized_loadings: bool = True) -> tuple[Problem, ...]:
+    """The one admissibility assessment of a solution, for every estimator: non-convergence, the problems
+    of each group's matrices, estimates held at a bound, and empirical under-identification.
+    ``cov_theta`` is the covariance matrix of the free parameters (None when there are no standard errors).
+    ``standardized_loadings`` False skips that check (ordinal items: latent responses have variance 1 by
+    construction, so the residual-variance check covers it)."""
+    if not converged:
+        return (not_converged(message, max_iterations),)
+    se = (np.sqrt(np.clip(np.diag(cov_theta), 0.0, None)) if cov_theta is not None
+          else np.full(len(theta), np.nan))
+    out: list[Problem] = []
+    for g, m in enumerate(mats):
+        label = table.groups[g] if table.multigroup else None
+        se_of = {}
+        for par in table.parameters:
+            if par.group == g and len(par.terms) == 1:
+                se_of[par.label] = float(se[par.terms[0][0]] * abs(par.terms[0][1]))
+        found = matrix_problems(m, table.observed, table.latent, label, se_of)
+        out.extend(p for p in found if standardized_loadings or p.kind is not ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE)
+    if table.n_free:
+        labels = list(table.free_labels)
+        for par in table.parameters:  # name each free parameter as its table row does: residual_variance(x9) [group]
+            if len(par.terms) == 1 and labels[par.terms[0][0]] == table.free_labels[par.terms[0][0]]:
+                suffix = f" [{table.groups[par.group]}]" if table.multigroup else ""
+                labels[par.terms[0][0]] = par.label + suffix
+        out.extend(bound_problems(tuple(labels), theta, table.lower, table.upper))
+        if cov_theta is not None:
+            out.extend(identification_problems(tuple(labels), se, theta))
+    return tuple(out)

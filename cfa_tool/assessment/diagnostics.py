@@ -23,10 +23,14 @@ class CaseDiagnostic:
     mahalanobis: float
     p_value: float
     chi_square_share: float
+    id: str | None = None  # the row's value in the id column (--id) or its row name, when the data have one
 
     def to_dict(self) -> dict:
-        return {"row": self.row, "mahalanobis": self.mahalanobis, "p_value": self.p_value,
-                "chi_square_share": self.chi_square_share}
+        out = {"row": self.row, "mahalanobis": self.mahalanobis, "p_value": self.p_value,
+               "chi_square_share": self.chi_square_share}
+        if self.id is not None:
+            out = {"row": self.row, "id": self.id, **{k: v for k, v in out.items() if k != "row"}}
+        return out
 
 
 def normalized_residuals(S: np.ndarray, sigma: np.ndarray, n_obs: int) -> np.ndarray:

@@ -84,10 +84,13 @@ class FactorReliability:
 class Htmt:
     first: str
     second: str
-    ratio: float
+    ratio: float | None  # None when the ratio is not defined for this pair
+    why_missing: str = ""
 
     def to_dict(self) -> dict:
-        return asdict(self)
+        out = asdict(self)
+        out["why_missing"] = self.why_missing or None
+        return out
 
 
 def cronbach_alpha(S: np.ndarray, keys: np.ndarray | None = None) -> float:
@@ -125,7 +128,8 @@ def _majority(signs: np.ndarray, values: np.ndarray) -> float:
 
 def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[str, ...], S: np.ndarray | None,
                 means: np.ndarray | None = None, declared: dict[str, tuple[float, float]] | None = None,
-                n_obs: int | None = None, sum_scores: bool = True) -> tuple[list[FactorReliability], list[Htmt]]:
+                n_obs: int | None = None, sum_scores: bool = True,
+                not_traits: frozenset[str] = frozenset()) -> tuple[list[FactorReliability], list[Htmt]]:
     """Per-factor coefficients and pairwise HTMT ratios of the keyed sums (see the module docstring).
 
     ``S``: the sample covariances (or, for ordinal items, polychoric correlations) for alpha, sum scores
@@ -133,7 +137,9 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     ``declared``: the reverse-keyed items of a 'reversed' statement with their scales' (minimum,
     maximum), None to key by signs; ``n_obs``: the number of rows, for a standard deviation with
     divisor N - 1 (S has divisor N); ``sum_scores``: False when S does not describe the items as
-    answered (ordinal items), so that sum scores and item-total correlations are not reported."""
+    answered (ordinal items), so that sum scores and item-total correlations are not reported;
+    ``not_traits``: method factors (wording, acquiescence), which get no coefficient, take no part in the
+    Fornell-Larcker comparison and no HTMT pair (their loadings describe a way of answering, not a trait)."""
     p, m = mats.L.shape
     G = mats.L @ mats.A
     phi = mats.latent_covariance()
@@ -151,7 +157,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     own_keys: dict[int, tuple[np.ndarray, np.ndarray]] = {}
     for j, name in enumerate(latent):
         items = np.flatnonzero(reach[:, j] | direct[:, j])
-        if len(items) == 0:
+        if len(items) == 0 or name in not_traits:
             continue
         names = tuple(observed[i] for i in items)
         keys, against = item_keys(G[items, j], names, declared)
@@ -201,13 +207,21 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         for a_pos, a in enumerate(first_order):
             for b in first_order[a_pos + 1:]:
                 (ia, ka), (ib, kb) = own_keys[a], own_keys[b]
-                if len(ia) < 2 or len(ib) < 2:
+                short = [latent[f] for f, i in ((a, ia), (b, ib)) if len(i) < 2]
+                if short:
+                    htmt.append(Htmt(latent[a], latent[b], None, f"{' and '.join(short)} "
+                                     f"{'has' if len(short) == 1 else 'have'} fewer than two items of its own, so there "
+                                     f"is no correlation within it to compare with"))
                     continue
                 hetero = (ka[:, None] * R[np.ix_(ia, ib)] * kb[None, :]).mean()
                 mono_a = (ka[:, None] * R[np.ix_(ia, ia)] * ka[None, :])[np.triu_indices(len(ia), 1)].mean()
                 mono_b = (kb[:, None] * R[np.ix_(ib, ib)] * kb[None, :])[np.triu_indices(len(ib), 1)].mean()
                 if mono_a > 0 and mono_b > 0:
                     htmt.append(Htmt(latent[a], latent[b], float(abs(hetero) / np.sqrt(mono_a * mono_b))))
+                else:
+                    weak = [latent[f] for f, mono in ((a, mono_a), (b, mono_b)) if mono <= 0]
+                    htmt.append(Htmt(latent[a], latent[b], None, f"the keyed items of {' and '.join(weak)} do not "
+                                     f"correlate positively on average, so the ratio is not defined"))
     return results, htmt
 
 

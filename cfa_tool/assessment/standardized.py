@@ -1,6 +1,6 @@
 """Standardized solutions and explained variance.
 
-``standardized_latent``: factors rescaled to unit variance (observed variables
+``standardized_factors_only``: factors rescaled to unit variance (observed variables
 keep their units).  ``standardized``: factors and observed variables both at
 unit variance (Bollen 1989, pp. 349-350).  Residual covariances are shown as
 residual correlations, theta_ij / sqrt(theta_ii theta_jj).

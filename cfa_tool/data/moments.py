@@ -166,7 +166,7 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
         )
 
 
-def _row_numbers(frame: pd.DataFrame) -> np.ndarray:
+def row_numbers(frame: pd.DataFrame) -> np.ndarray:
     """1-based data-row numbers: from the index when it counts rows (files, filtered files), else positions."""
     index = frame.index
     if isinstance(index, pd.RangeIndex) and index.start >= 0 and index.step == 1:  # the common case, without type checks
@@ -203,7 +203,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     centred = data - means
     cov = centred.T @ centred / n
     _check_moments(cov, means, names, source)
-    numbers = _row_numbers(frame) if every_row else _row_numbers(frame)[complete]
+    numbers = row_numbers(frame) if every_row else row_numbers(frame)[complete]
     return SampleMoments(tuple(names), cov, means, n, len(frame), len(frame) - n, file_source, group, data, numbers)
 
 
@@ -231,16 +231,18 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
 
 
 def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20) -> dict:
-    """Coverage of each variable and the most frequent missing-data patterns ('x' answered, '.' missing)."""
+    """Coverage of each variable and the most frequent missing-data patterns, each named by the items its
+    rows did not answer (an empty list: complete rows)."""
     observed = frame[list(names)].notna().to_numpy()
     coverage = {name: float(v) for name, v in zip(names, observed.mean(axis=0))}
     if observed.all():
-        return {"coverage": coverage, "patterns": [{"pattern": "x" * len(names), "rows": int(len(observed))}],
+        return {"coverage": coverage, "patterns": [{"not_answered": [], "rows": int(len(observed))}],
                 "n_patterns": 1 if len(observed) else 0}
     patterns, counts = np.unique(observed, axis=0, return_counts=True)
     order = np.argsort(-counts, kind="stable")[:limit]
     return {
         "coverage": coverage,
-        "patterns": [{"pattern": "".join("x" if v else "." for v in patterns[k]), "rows": int(counts[k])} for k in order],
+        "patterns": [{"not_answered": [name for name, answered in zip(names, patterns[k]) if not answered],
+                      "rows": int(counts[k])} for k in order],
         "n_patterns": int(len(patterns)),
     }

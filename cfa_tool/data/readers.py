@@ -29,6 +29,11 @@ class LoadedData:
     variable_labels: dict[str, str] = field(default_factory=dict)
     value_labels: dict[str, dict] = field(default_factory=dict)
     notes: tuple[str, ...] = ()  # what reading the file did that the report should say
+    #: the values of a first column without a name in the header (row names), as text, one per row of ``frame``
+    #: and on its index; None when the file has no such column.  Never analysed; they can name the rows in outputs.
+    row_names: pd.Series | None = None
+    #: the rows as read, before row filters (None when no filter was applied: ``frame`` holds them all)
+    read_frame: pd.DataFrame | None = None
 
 
 EXCEL_SUFFIXES = (".xlsx", ".xlsm")
@@ -48,14 +53,18 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         raise DataError(f"'{path}' is not an Excel workbook, so a sheet cannot be chosen")
     if suffix in EXCEL_SUFFIXES:
         notes: list[str] = []
-        loaded = LoadedData(_read_excel(path, sheet, notes), str(path), notes=tuple(notes))
+        names: list[pd.Series] = []
+        loaded = LoadedData(_read_excel(path, sheet, notes, names), str(path), notes=tuple(notes),
+                            row_names=names[0] if names else None)
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _read_labelled(path)
     elif suffix in (".xls",):
         raise DataError(f"'{path}' is an old-style Excel file; save it as .xlsx or CSV")
     else:
         notes = []
-        loaded = LoadedData(read_table(path, notes), str(path), notes=tuple(notes))
+        names = []
+        loaded = LoadedData(read_table(path, notes, names), str(path), notes=tuple(notes),
+                            row_names=names[0] if names else None)
     if missing_codes:
         frame = loaded.frame.copy()
         for column in frame.columns:
@@ -65,7 +74,7 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     return loaded
 
 
-def _read_excel(path: Path, sheet: str | None, notes: list[str]) -> pd.DataFrame:
+def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list | None = None) -> pd.DataFrame:
     try:
         import openpyxl
     except ImportError:  # pragma: no cover - a declared dependency
@@ -120,7 +129,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str]) -> pd.DataFrame
         _check_uncomputed_formulas(path, ws.title, first)
     frame = pd.DataFrame(body, columns=header)
     if row_names:
-        frame = frame.iloc[:, 1:]
+        frame = _split_row_names(frame, names_out)
         notes.append(f"{path} (sheet '{ws.title}'): the first column has no name in the header and was read as row "
                      f"names, not as data")
     return frame
@@ -262,9 +271,10 @@ def _shown_delimiter(d: str) -> str:
     return {"\t": "tab", ",": ",", ";": ";", "|": "|"}[d]
 
 
-def read_table(path: str | Path, notes: list[str] | None = None) -> pd.DataFrame:
+def read_table(path: str | Path, notes: list[str] | None = None, row_names: list | None = None) -> pd.DataFrame:
     """A delimited text file as a DataFrame.  ``notes`` receives what was done to read it that the
-    report should mention (empty fields dropped at the ends of rows, a row-name column)."""
+    report should mention (empty fields dropped at the ends of rows, a row-name column); ``row_names``
+    receives the row-name column's values (a Series of text) when the file has one."""
     path = Path(path)
     raw = input_bytes(path, "data file", DataError, MAX_TEXT_BYTES)
     if not raw.strip():
@@ -282,9 +292,9 @@ def read_table(path: str | Path, notes: list[str] | None = None) -> pd.DataFrame
     while len(header) > 1 and not header[-1]:  # a delimiter at the end of the header line
         header.pop()
         trailing += 1
-    row_names = len(header) > 1 and not header[0]
+    has_row_names = len(header) > 1 and not header[0]
     for position, name in enumerate(header, start=1):
-        if not name and not (position == 1 and row_names):
+        if not name and not (position == 1 and has_row_names):
             raise DataError(f"{path}: line {header_line}: column {position} of the header has no name")
     _check_duplicates(header, str(path))
     widest = _check_field_counts(text, delimiter, len(header), len(header) + trailing, path)
@@ -311,11 +321,20 @@ def read_table(path: str | Path, notes: list[str] | None = None) -> pd.DataFrame
     empty = widest - len(header)
     if empty and notes is not None:
         notes.append(f"{path}: empty fields at the end of the lines (a delimiter after the last value) were ignored")
-    if row_names:
-        frame = frame.iloc[:, 1:]
+    if has_row_names:
+        frame = _split_row_names(frame, row_names)
         if notes is not None:
             notes.append(f"{path}: the first column has no name in the header and was read as row names, not as data")
     return frame
+
+
+def _split_row_names(frame: pd.DataFrame, out: list | None) -> pd.DataFrame:
+    """The frame without its first (row-name) column; the column's values, as text, go to ``out``."""
+    if out is not None:
+        first = frame.iloc[:, 0]
+        out.append(first.map(lambda v: None if pd.isna(v) else (f"{v:g}" if isinstance(v, float) else str(v)))
+                   .rename(None))
+    return frame.iloc[:, 1:]
 
 
 def _offset_of_line(text: str, line: int) -> int:

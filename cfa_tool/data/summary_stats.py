@@ -1,28 +1,29 @@
 """Summary statistics instead of raw data: a covariance or correlation matrix as
 published in papers, with sample size and optional standard deviations and means.
 
-The file format (extension ``.stats``) is the tool's own, line by line::
+The file (extension ``.stats``, or ``.csv`` when its first cell says what it holds) is comma-separated
+text that describes itself::
 
     # Holzinger & Swineford (1939), 301 pupils
-    variables: x1 x2 x3 x4 x5 x6 x7 x8 x9
-    observations: 301
-    matrix: covariance          # or: correlation
-    sd: 1.17 1.18 ...           # optional; turns a correlation matrix into covariances
-    means: 4.94 6.09 ...        # optional
-    divisor: n-1                # optional: n-1 (default, as published) or n
-    values:
-    1.363
-    0.408 1.386
-    ...
+    covariance,x1,x2,x3          <- 'covariance' or 'correlation', then the variables
+    x1,1.363
+    x2,0.408,1.386
+    x3,0.581,0.451,1.273
+    n,301
+    sd,1.17,1.18,1.13            <- optional; turns a correlation matrix into covariances
+    mean,4.94,6.09,2.25          <- optional
+    divisor,n                    <- optional: n-1 (default, as published) or n
 
-After ``values:`` come the rows of the matrix: a lower triangle (row i holds i
-numbers) or the full matrix.  Names and numbers are separated by spaces or
-commas.
+The matrix rows are named by their variable, in the header's order, and hold a lower triangle or the
+full matrix (empty cells after the last number are ignored).  Semicolons or tabs may separate the cells
+instead of commas (then a decimal comma is read as a decimal point).  Lines starting with '#' are notes.
 """
 
 from __future__ import annotations
 
+import os
 import re
+import stat
 from pathlib import Path
 
 import numpy as np
@@ -35,27 +36,30 @@ from cfa_tool.numbers import number, whole_number
 from cfa_tool.options import MAX_OBSERVATIONS
 
 MAX_SUMMARY_BYTES = 50_000_000
-KEYS = ("variables", "observations", "matrix", "sd", "means", "divisor", "values")
+KINDS = ("covariance", "correlation")
+EXTRA_ROWS = ("n", "sd", "mean", "divisor")
 SUMMARY_SUFFIX = ".stats"
+#: the keyword lines of the first version of the format, recognised only to say how to write the file now
+OLD_KEYS = ("variables", "observations", "matrix", "sd", "means", "divisor", "values")
+NEW_FORM = ("write it as comma-separated lines: 'covariance,x1,x2,...' (or 'correlation,...'), one line per "
+            "variable starting with its name and holding its row of the matrix, then 'n,301' and, if you have them, "
+            "'sd,...', 'mean,...' and 'divisor,n'")
 
 
-def _numbers(text: str, where: str) -> list[float]:
+def _numbers(cells: list[str], where: str) -> list[float]:
     out = []
-    for token in re.split(r"[\s,]+", text.strip()):
-        if not token:
-            continue
+    for token in cells:
+        token = token.strip()
         value = number(token)
         if value is None:
             raise DataError(f"{where}: '{printable(token)}' is not a number")
         if not np.isfinite(value):
-            raise DataError(f"{where}: '{token}' is not a finite number")
+            raise DataError(f"{where}: '{printable(token)}' is not a finite number")
         out.append(value)
     return out
 
 
-def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
-    """Parse a ``.stats`` file into moments (divisor N) and notes for the report."""
-    path = Path(path)
+def _text(path: Path) -> str:
     raw = input_bytes(path, "summary-statistics file", DataError, MAX_SUMMARY_BYTES)
     text = utf16_text(raw)
     if text is None:
@@ -65,57 +69,106 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
             raise DataError(f"summary-statistics file '{path}' is not UTF-8 text") from None
     if "\x00" in text:
         raise DataError(f"summary-statistics file '{path}' is not a text file (it contains NUL bytes)")
-    lines = text_lines(normalise_line_ends(text))
-    fields: dict[str, tuple[str, int]] = {}
-    rows: list[tuple[list[float], int]] = []
-    in_values = False
-    for number, raw in enumerate(lines, start=1):
-        line = raw.split("#", 1)[0].strip()
-        if not line:
-            continue
-        where = f"{path}:{number}"
-        if in_values:
-            rows.append((_numbers(line, where), number))
-            continue
-        key, sep, rest = line.partition(":")
-        key = key.strip().lower()
-        if not sep or key not in KEYS:
-            raise DataError(f"{where}: expected one of {', '.join(k + ':' for k in KEYS)} at the start of the line")
-        if key in fields:
-            raise DataError(f"{where}: '{key}:' is given twice (first on line {fields[key][1]})")
-        fields[key] = (rest.strip(), number)
-        if key == "values":
-            in_values = True
-            if rest.strip():
-                rows.append((_numbers(rest, where), number))
-    for key in ("variables", "observations", "matrix", "values"):
-        if key not in fields:
-            raise DataError(f"{path}: the file has no '{key}:' line")
-    names = [t for t in re.split(r"[\s,]+", fields["variables"][0]) if t]
-    if not names:
-        raise DataError(f"{path}:{fields['variables'][1]}: the 'variables:' line names no variables")
+    return text
+
+
+def _split(line: str, delimiter: str) -> list[str]:
+    cells = [c.strip() for c in line.split(delimiter)]
+    while cells and not cells[-1]:  # empty cells after the last value (a lower triangle written by a spreadsheet)
+        cells.pop()
+    return cells
+
+
+def holds_summary(path: str | Path) -> bool:
+    """Whether a .csv file is a summary-statistics file (its first cell is 'covariance' or 'correlation').
+    Only a regular file is looked into: a named pipe or a device is read once, by the data reader."""
+    try:
+        if not stat.S_ISREG(os.stat(path).st_mode):
+            return False
+        with open(path, "rb") as handle:
+            head = handle.read(4096).decode("utf-8-sig", errors="replace")
+    except OSError:
+        return False
+    for line in text_lines(normalise_line_ends(head)):
+        if line.strip() and not line.lstrip().startswith("#"):
+            first = re.split(r"[,;\t]", line, maxsplit=1)[0].strip().strip('"').lower()
+            return first in KINDS
+    return False
+
+
+def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
+    """Parse a summary-statistics file into moments (divisor N) and notes for the report."""
+    path = Path(path)
+    lines = text_lines(normalise_line_ends(_text(path)))
+    content = [(k, line) for k, line in enumerate(lines, start=1) if line.strip() and not line.lstrip().startswith("#")]
+    if not content:
+        raise DataError(f"{path}: the file is empty; {NEW_FORM}")
+    first_line, header_text = content[0]
+    key = header_text.partition(":")[0].strip().lower()
+    if ":" in header_text and key in OLD_KEYS:
+        raise DataError(f"{path}:{first_line}: this is the earlier keyword form of a summary-statistics file; {NEW_FORM}")
+    delimiter = "," if "," in header_text else (";" if ";" in header_text else "\t")
+    header = [c.strip('"') for c in _split(header_text, delimiter)]
+    kind = header[0].lower() if header else ""
+    if kind not in KINDS:
+        raise DataError(f"{path}:{first_line}: the first cell must say what the matrix holds ('covariance' or "
+                        f"'correlation'), not '{printable(header[0] if header else '')}'; {NEW_FORM}")
+    names = header[1:]
+    if not names or any(not n for n in names):
+        raise DataError(f"{path}:{first_line}: the first line must name every variable after '{kind}'")
     if len(set(names)) != len(names):
         dup = next(n for n in names if names.count(n) > 1)
-        raise DataError(f"{path}:{fields['variables'][1]}: the variable '{dup}' is named twice")
-    n_text, n_line = fields["observations"]
-    if whole_number(n_text) is None or whole_number(n_text) < 1 or len(n_text) > 13:
-        shown = printable(n_text if len(n_text) <= 20 else n_text[:17] + "...")
-        raise DataError(f"{path}:{n_line}: the number of observations must be a whole number from 1 to "
+        raise DataError(f"{path}:{first_line}: the variable '{printable(dup)}' is named twice")
+    p = len(names)
+    rows: list[tuple[list[float], int]] = []
+    extra: dict[str, tuple[list[str], int]] = {}
+    for number_, line in content[1:]:
+        cells = _split(line, delimiter)
+        label = cells[0].strip('"') if cells else ""
+        where = f"{path}:{number_}"
+        if label.lower() in EXTRA_ROWS:
+            if label.lower() in extra:
+                raise DataError(f"{where}: the '{label.lower()}' row is given twice (first on line "
+                                f"{extra[label.lower()][1]})")
+            extra[label.lower()] = (cells[1:], number_)
+            continue
+        if extra:
+            raise DataError(f"{where}: matrix rows come before the n, sd, mean and divisor rows")
+        if len(rows) >= p:
+            raise DataError(f"{where}: '{printable(label)}' is not a variable of the header nor one of "
+                            f"{', '.join(EXTRA_ROWS)}; the matrix has {p} rows")
+        if label != names[len(rows)]:
+            raise DataError(f"{where}: row {len(rows) + 1} of the matrix is named '{printable(label)}'; the rows must "
+                            f"follow the header's order ('{printable(names[len(rows)])}' here)")
+        if delimiter != ",":  # a decimal comma goes with semicolons and tabs
+            cells = [c.replace(",", ".") for c in cells]
+        rows.append((_numbers(cells[1:], where), number_))
+    if "n" not in extra:
+        raise DataError(f"{path}: the file has no 'n' row (the number of observations), e.g. 'n,301'")
+    n_cells, n_line = extra["n"]
+    n_text = n_cells[0] if n_cells else ""
+    if len(n_cells) != 1 or whole_number(n_text) is None or whole_number(n_text) < 1 or len(n_text) > 13:
+        shown = printable(",".join(n_cells) if len(",".join(n_cells)) <= 20 else ",".join(n_cells)[:17] + "...")
+        raise DataError(f"{path}:{n_line}: the number of observations must be one whole number from 1 to "
                         f"{MAX_OBSERVATIONS:,}, not '{shown}'")
     n_obs = int(n_text)
-    kind, kind_line = fields["matrix"]
-    kind = kind.lower()
-    if kind not in ("covariance", "correlation"):
-        raise DataError(f"{path}:{kind_line}: matrix must be 'covariance' or 'correlation', not '{kind}'")
-    divisor = fields.get("divisor", ("n-1", 0))[0].lower().replace(" ", "")
-    if divisor not in ("n-1", "n"):
-        raise DataError(f"{path}:{fields['divisor'][1]}: divisor must be 'n-1' or 'n', not '{divisor}'")
-    p = len(names)
+    divisor = "n-1"
+    if "divisor" in extra:
+        cells, line = extra["divisor"]
+        divisor = (cells[0] if len(cells) == 1 else ",".join(cells)).lower().replace(" ", "")
+        if divisor not in ("n-1", "n"):
+            raise DataError(f"{path}:{line}: divisor must be 'n-1' or 'n', not '{printable(divisor)}'")
+
+    def vector(name: str) -> np.ndarray | None:
+        if name not in extra:
+            return None
+        cells, line = extra[name]
+        if delimiter != ",":
+            cells = [c.replace(",", ".") for c in cells]
+        return np.array(_numbers(cells, f"{path}:{line}"))
+
     matrix = _assemble(rows, p, str(path))
-    sds = np.array(_numbers(fields["sd"][0], f"{path}:{fields['sd'][1]}")) if "sd" in fields else None
-    means = np.array(_numbers(fields["means"][0], f"{path}:{fields['means'][1]}")) if "means" in fields else None
-    moments, notes = summary_moments(names, matrix, n_obs, kind, sds, means, divisor, str(path))
-    return moments, notes
+    return summary_moments(names, matrix, n_obs, kind, vector("sd"), vector("mean"), divisor, str(path))
 
 
 def _assemble(rows: list[tuple[list[float], int]], p: int, source: str) -> np.ndarray:

@@ -55,6 +55,7 @@ def check_spec(spec: Spec) -> None:
     _check_factors(spec)
     _check_scaling(spec)
     _check_ordinal(spec)
+    _check_method(spec)
     _check_reversed(spec)
     _check_pairs(spec)
     _check_references(spec)
@@ -154,6 +155,29 @@ def _check_ordinal(spec: Spec) -> None:
             raise _fail(spec, f"'{name}' is a factor; only indicators can be ordinal", name.location)
         if name.text not in observed:
             raise _unknown_name(spec, name.text, name.location)
+
+
+def _check_method(spec: Spec) -> None:
+    seen: set[str] = set()
+    for name in spec.method:
+        if name.text not in spec.factor_names:
+            if name.text in spec.observed_names:
+                raise _fail(spec, f"'{name}' is an indicator; 'method' marks factors that stand for a method of "
+                                  f"measurement (wording, acquiescence), not traits", name.location)
+            raise _unknown_name(spec, name.text, name.location)
+        if name.text in seen:
+            raise _fail(spec, f"'{name}' is named as a method factor twice", name.location)
+        seen.add(name.text)
+        for factor in spec.factors:
+            if factor.name.text == name.text and any(i.text in spec.factor_names for i in factor.indicators):
+                raise _fail(spec, f"'{name}' explains other factors; a method factor stands for a way of answering "
+                                  f"items and loads on items only", name.location)
+            if any(i.text == name.text for i in factor.indicators):
+                raise _fail(spec, f"'{name}' is explained by the higher-order factor '{factor.name}'; a method factor "
+                                  f"(a way of answering) is not part of a trait", name.location)
+    if spec.method and len(seen) == len(spec.factor_names):
+        raise _fail(spec, "every factor is marked as a method factor; a model needs at least one trait",
+                    spec.method[0].location)
 
 
 def _check_reversed(spec: Spec) -> None:

@@ -36,7 +36,7 @@ from cfa_tool.language.spec import (
 from cfa_tool.resources import resource_dir
 
 STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale", "in",
-                   "invariant", "noninvariant", "ordinal", "reversed")
+                   "invariant", "noninvariant", "ordinal", "reversed", "method")
 
 # Plain words for the grammar's terminals, used in "expected ..." messages.
 _TERMINAL_WORDS = {
@@ -153,6 +153,8 @@ def _unexpected_token_message(exc: UnexpectedToken) -> str:
         guess = close_names(word, STATEMENT_WORDS)
         hint = f"; did you mean '{guess[0]}'?" if guess else f"; a statement starts with one of: {', '.join(STATEMENT_WORDS)}"
         return f"unknown statement {shown}{hint}"
+    if token.type == "_NL":
+        return f"the line ends too early; expected {_or_list(sorted(set(words)))}"
     return f"unexpected {shown}; expected {_or_list(sorted(set(words)))}"
 
 
@@ -209,6 +211,7 @@ class _Builder:
         noninvariant: list[ParameterRef] = []
         ordinal: list[Name] = []
         reversed_items: list[ReverseKeying] = []
+        method_factors: list[Name] = []
         for stmt in tree.children:
             kind = stmt.data
             self.group = None
@@ -264,6 +267,8 @@ class _Builder:
                 noninvariant.extend(self.refs(stmt.children[0]))
             elif kind == "ordinal_stmt":
                 ordinal.extend(self.name_list(stmt.children[0]))
+            elif kind == "method_stmt":
+                method_factors.extend(self.name_list(stmt.children[0]))
             elif kind == "reversed_stmt":
                 low, high = self.number(stmt.children[1]), self.number(stmt.children[2])
                 if low >= high:
@@ -294,6 +299,7 @@ class _Builder:
             noninvariant=tuple(noninvariant),
             ordinal=tuple(ordinal),
             reversed=tuple(reversed_items),
+            method=tuple(method_factors),
             lines=self.lines,
         )
 

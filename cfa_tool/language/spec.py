@@ -132,6 +132,7 @@ class Spec:
     noninvariant: tuple[ParameterRef, ...] = ()
     ordinal: tuple[Name, ...] = ()
     reversed: tuple[ReverseKeying, ...] = ()
+    method: tuple[Name, ...] = ()  # factors of method, not of a trait (wording, acquiescence): no reliability
     lines: tuple[str, ...] = field(default=(), repr=False, compare=False)
 
     @cached_property
@@ -148,6 +149,11 @@ class Spec:
                 if ind.text not in latent:
                     seen.setdefault(ind.text, None)
         return tuple(seen)
+
+    @property
+    def method_factors(self) -> frozenset[str]:
+        """Factors the model declares as method factors (not traits)."""
+        return frozenset(n.text for n in self.method)
 
     @property
     def reverse_keyed(self) -> dict[str, tuple[float, float]]:

@@ -43,6 +43,7 @@ class ModelDescription:
     ordinal: tuple[str, ...]
     invariant: tuple[str, ...]  # classes held equal across groups
     noninvariant: tuple[tuple, ...]  # parameters exempted
+    method_factors: tuple[str, ...] = ()  # factors of a method of measurement, not traits
 
     def to_dict(self) -> dict:
         return {
@@ -61,6 +62,7 @@ class ModelDescription:
             "ordinal_items": list(self.ordinal),
             "invariant": list(self.invariant),
             "noninvariant": [_ref_dict(r) for r in self.noninvariant],
+            "method_factors": list(self.method_factors),
         }
 
 
@@ -91,7 +93,8 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
     added = tuple(p.key() for p in spec.covary if p.first.text in latent and not (p.first.text in exo and p.second.text in exo))
     uncorrelated = tuple((p.first.text, p.second.text) for p in spec.uncorrelated)
     exo_first = [f for f in first_order if f in exo]
-    correlated = len(exo_first) > 1
+    held = {frozenset(p) for p in uncorrelated}
+    correlated = any(frozenset((a, b)) not in held for i, a in enumerate(exo_first) for b in exo_first[i + 1:])
     return ModelDescription(
         first_order=first_order,
         higher_order=higher,
@@ -108,6 +111,7 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
         ordinal=tuple(n.text for n in spec.ordinal),
         invariant=tuple(spec.invariant),
         noninvariant=tuple(_ref(r) for r in spec.noninvariant),
+        method_factors=tuple(n.text for n in spec.method),
     )
 
 

@@ -11,7 +11,8 @@ from functools import lru_cache
 
 import numpy as np
 
-from cfa_tool.assessment.admissibility import admissibility_warnings
+from cfa_tool.assessment.admissibility import solution_problems
+from cfa_tool.data.descriptives import item_shape
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, normalized_residuals
 from cfa_tool.assessment.fit_indices import fit_indices, normal_theory_parts, srmr, srmr_value
@@ -250,15 +251,13 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         inference = wald_inference(values, model.J, cov_theta)
         if options.modification_indices:
             mis = modification_indices(model, theta, likelihood, exogenous_factors(spec))
-        for g, m in enumerate(mats):
-            prefix = f"group '{table.groups[g]}': " if multi else ""
-            warnings.extend(prefix + w for w in admissibility_warnings(m, table.observed, table.latent))
     else:
         # a model that is not identified often shows itself by not converging: say so when it is the cause
         evaluation = likelihood.evaluate(theta)
         if evaluation is not None and np.all(np.isfinite(evaluation.information)):
             check_information_rank(evaluation.information, table.free_labels)
-        warnings.append(f"the estimation did not converge ({est.message}); no result from it should be interpreted")
+    problems = solution_problems(table, mats, theta, cov_theta if est.converged else None, est.converged, est.message,
+                                 options.max_iterations)
 
     estimates = estimate_rows(table, values, inference, std_all, std_lv)
 
@@ -280,7 +279,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 implied_mean=mats[g].implied_mean() if means else None,
                 normality=mardia(gm.rows) if options.diagnostics and gm.rows is not None else None,
                 **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics,
-                                     spec.reverse_keyed or None),
+                                     spec.reverse_keyed or None, spec.method_factors),
             )
         )
     for g, result in enumerate(group_results):
@@ -305,7 +304,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     return fit_result(spec=spec, method=method, converged=est.converged, iterations=est.iterations, message=est.message,
                       theta=theta, n_obs=n_total, data=overall, observed=table.observed, latent=table.latent, fit=fit,
                       robust=robust, estimates=estimates, modification_indices=mis, groups=group_results,
-                      warnings=warnings, options=options, group_column=group_column)
+                      warnings=warnings, options=options, group_column=group_column, problems=problems)
 
 
 def estimate_rows(table: ParameterTable, values: np.ndarray, inference, std_all: np.ndarray, std_lv: np.ndarray,
@@ -335,12 +334,13 @@ def estimate_rows(table: ParameterTable, values: np.ndarray, inference, std_all:
 
 
 def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool,
-                       declared: dict[str, tuple[float, float]] | None) -> dict:
+                       declared: dict[str, tuple[float, float]] | None, not_traits: frozenset[str] = frozenset()) -> dict:
     """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often);
     ``declared``: the reverse-keyed items of a 'reversed' statement, if any."""
     if not wanted:
         return {}
-    factors, htmt = reliability(mats, table.observed, table.latent, gm.covariance, gm.mean, declared, gm.n_obs)
+    factors, htmt = reliability(mats, table.observed, table.latent, gm.covariance, gm.mean, declared, gm.n_obs,
+                                not_traits=not_traits)
     out = {"reliability": tuple(factors), "htmt": tuple(htmt),
            "normalized_residuals": normalized_residuals(gm.covariance, sigma, gm.n_obs)}
     if gm.rows is not None and not np.isnan(gm.rows).any():
@@ -350,8 +350,13 @@ def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: n
 
 
 def _summary(m: SampleMoments, observed: tuple[str, ...], gm: GroupMoments) -> DataSummary:
+    rows = gm.rows if gm.rows is not None else m.rows  # with gaps: the rows of the sample moments, in their order
+    if rows is not None and rows is m.rows and tuple(m.names) != tuple(observed):
+        rows = rows[:, [m.names.index(x) for x in observed]]
+    shape = item_shape(rows) if rows is not None else None
     return DataSummary(m.source, m.rows_read, m.rows_dropped, m.n_obs, observed,
-                       tuple(float(v) for v in gm.mean), tuple(float(v) for v in np.sqrt(np.diag(gm.covariance))))
+                       tuple(float(v) for v in gm.mean), tuple(float(v) for v in np.sqrt(np.diag(gm.covariance))),
+                       *((shape.answered, shape.skewness, shape.kurtosis) if shape is not None else ()))
 
 
 @dataclass(frozen=True)

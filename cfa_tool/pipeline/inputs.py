@@ -15,7 +15,8 @@ from cfa_tool.data.matching import check_columns, check_declared_ranges
 from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
-from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, read_summary_file, summary_moments
+from cfa_tool.data.row_ids import ids_by_row_number, row_ids
+from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
 from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
@@ -52,19 +53,25 @@ def load_spec(model: str | os.PathLike | Spec) -> Spec:
     raise OptionError(f"model must be model text, a path or a parsed specification, not {type(model).__name__}")
 
 
-def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), keep=(), group: str | None = None) -> None:
+def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), keep=(), group: str | None = None,
+                       id_column: str | None = None) -> None:
     """Options about rows and columns of raw data cannot apply to summary statistics: each is an
     error rather than silently ignored."""
     given = [name for name, value in (("a sheet (--sheet)", sheet), ("missing-value codes (--missing-codes)", missing_codes),
-                                      ("row filters (--keep)", keep), ("groups (--group)", group)) if value]
+                                      ("row filters (--keep)", keep), ("groups (--group)", group),
+                                      ("an id column (--id)", id_column)) if value]
     if given:
         raise OptionError(f"{source} holds summary statistics, not rows of data, so {given[0]} cannot apply; "
                           f"remove the option or give the raw data")
 
 
 def summary_source(data) -> bool:
-    """Whether ``data`` names a summary-statistics file (by its extension)."""
-    return isinstance(data, (str, os.PathLike)) and Path(data).suffix.lower() == SUMMARY_SUFFIX
+    """Whether ``data`` names a summary-statistics file: by its extension (.stats), or a .csv file whose first
+    cell says it holds a covariance or correlation matrix."""
+    if not isinstance(data, (str, os.PathLike)):
+        return False
+    suffix = Path(data).suffix.lower()
+    return suffix == SUMMARY_SUFFIX or (suffix == ".csv" and holds_summary(data))
 
 
 def missing_codes_option(codes) -> tuple[float, ...]:
@@ -97,7 +104,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             frame = frame.mask(frame.isin(list(missing_codes)))
         return LoadedData(frame, "<data frame>")
     if isinstance(data, (str, Path)):
-        if Path(data).suffix.lower() == SUMMARY_SUFFIX:
+        if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes))
@@ -138,7 +145,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=()) -
         frame, notes = apply_filters(frame, [parse_filter(k) for k in keep], loaded.source)
     check_columns(spec, columns, loaded.source)
     check_declared_ranges(spec, frame, loaded.source)
-    return spec, replace(loaded, frame=frame), notes
+    return spec, replace(loaded, frame=frame, read_frame=loaded.frame if keep else None), notes
 
 
 def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,
@@ -162,7 +169,10 @@ def _check_group_column(spec: Spec, group: str) -> None:
 
 
 def _no_group_notes(no_group: int, group: str) -> list[str]:
-    return [f"{no_group} rows have no value in the group column '{group}' and were left out"] if no_group else []
+    if not no_group:
+        return []
+    return [f"{no_group} {'row has' if no_group == 1 else 'rows have'} no value in the group column '{group}' and "
+            f"{'was' if no_group == 1 else 'were'} left out"]
 
 
 def prepare(model: str | Path | Spec, data: pd.DataFrame | str | Path) -> tuple[Spec, SampleMoments]:
@@ -175,7 +185,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
         keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
         variables: list[str] | None = None, matrix: str = "covariance", sds=None, divisor: str = "n-1",
-        ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, **options) -> FitResult:
+        ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, id_column: str | None = None,
+        **options) -> FitResult:
     """Fit a confirmatory factor model by maximum likelihood.
 
     ``model``: model text, a path to a model file, or a parsed Spec.
@@ -190,6 +201,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ``ordinal``: 'all' or a list of items to treat as ordinal (as does an 'ordinal' statement in
     the model): thresholds and polychoric correlations, fitted by ``ordinal_estimator``
     ('diagonally-weighted' or 'unweighted' least squares) with robust standard errors.
+    ``id_column``: a column that names each row (never analysed; not a model variable or the group
+    column): the case diagnostics name their rows by it beside the data-row number; without it, a
+    row-name column of the file (a first column without a name in the header) does.
     ``options``: ``information``, ``test``, ``missing``, ``mi_threshold``, ``mi_top``, ``max_iterations``;
     ``diagnostics=False`` and ``modification_indices=False`` skip the extras (normality tests,
     reliability, residual and case diagnostics; score tests) in loops that only need estimates,
@@ -207,7 +221,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         if given:
             raise OptionError(f"{given[0]} goes with a covariance matrix (covariance=...), and none is given")
     if covariance is not None or summary_source(data):
-        refuse_row_options("a covariance matrix" if covariance is not None else f"'{data}'", sheet, missing_codes, keep, group)
+        refuse_row_options("a covariance matrix" if covariance is not None else f"'{data}'", sheet, missing_codes, keep, group,
+                           id_column)
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         if ordinal or ordinal_estimator is not None:
@@ -227,6 +242,24 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    frame, source = loaded.frame, loaded.source
+    ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
+    return named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator),
+                       ids_by_row_number(ids, frame))
+
+
+def named_cases(result: FitResult, ids: dict) -> FitResult:
+    """The result with each case diagnostic named by its row's id (unchanged without ids)."""
+    if not ids:
+        return result
+    groups = tuple(replace(g, unusual_cases=tuple(replace(c, id=ids.get(c.row)) for c in g.unusual_cases),
+                           influential_cases=tuple(replace(c, id=ids.get(c.row)) for c in g.influential_cases))
+                   for g in result.groups)
+    return replace(result, groups=groups)
+
+
+def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator) -> FitResult:
+    """The fit of rows of raw data (after reading, filters and model checks)."""
     frame, source = loaded.frame, loaded.source
     ordinal_items = ordinal_items_of(spec, ordinal)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)

@@ -16,7 +16,7 @@ from dataclasses import replace as dc_replace
 
 import numpy as np
 
-from cfa_tool.assessment.admissibility import admissibility_warnings
+from cfa_tool.assessment.admissibility import solution_problems
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.fit_indices import fit_indices, srmr
 from cfa_tool.assessment.identification import check_information_rank
@@ -85,9 +85,10 @@ def _modification_rows(candidates: list[list], mi: np.ndarray, epc: np.ndarray, 
 # ---------------------------------------------------------------- one group
 
 
-def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weighting.DIAGONAL) -> FitResult:
-    """Least squares on polychoric correlations, with robust standard errors and adjusted tests."""
-    method = _check_method(method)
+def ordinal_spec(spec: Spec) -> tuple[Spec, set[str]]:
+    """The model a one-group ordinal fit estimates: the residual variances of the latent responses fixed
+    (they are not parameters: the latent responses have unit variance), and the items whose residual
+    variance follows from that."""
     user_fixed = {r.key() for s in spec.fixed for r in s.refs}
     for setting in spec.starts + tuple(spec.bounds):
         for ref in setting.refs:
@@ -96,7 +97,13 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     refs = tuple(ParameterRef("variance", (x,), spec.first_mention(x)) for x in spec.observed_names
                  if ("variance", (x,)) not in user_fixed)
     derived_items = {r.names[0] for r in refs}  # residual variances that follow from unit latent-response variances
-    fixed_spec = dc_replace(spec, fixed=spec.fixed + ((ValueSetting(refs, 1.0),) if refs else ()))
+    return dc_replace(spec, fixed=spec.fixed + ((ValueSetting(refs, 1.0),) if refs else ())), derived_items
+
+
+def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weighting.DIAGONAL) -> FitResult:
+    """Least squares on polychoric correlations, with robust standard errors and adjusted tests."""
+    method = _check_method(method)
+    fixed_spec, derived_items = ordinal_spec(spec)
     table = build_parameter_table(fixed_spec)
     p = table.p
     n_corr = p * (p - 1) // 2
@@ -164,15 +171,14 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
             D_cand = entry_derivatives(final, *candidate_arrays(cands))[0][:, pairs[0], pairs[1]]
             mi, epc = least_squares_score_tests(D, D_cand, R[pairs] - sigma[pairs], weights, gamma, n)
             modification = _modification_rows([cands], mi, epc, lambda g: final, lambda g: None)
-        warnings.extend(admissibility_warnings(final, table.observed, table.latent))
         warnings.append(ORDINAL_NOTE)
-    else:
-        warnings.append(f"the estimation did not converge ({message}); no result from it should be interpreted")
+    problems = solution_problems(table, [final], theta, cov_theta if opt.converged else None, opt.converged, message,
+                                 options.max_iterations)
     derived = frozenset(e for e, par in enumerate(table.parameters)
                         if par.kind == "residual_variance" and par.variables[0] in derived_items)
     estimates = estimate_rows(table, values, inference, std_all, std_lv, derived)
     factors, htmt = reliability(final, table.observed, table.latent, R, declared=spec.reverse_keyed or None,
-                                sum_scores=False)
+                                sum_scores=False, not_traits=spec.method_factors)
     if opt.converged:
         warnings.extend(keying_warnings(factors))
     summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
@@ -188,7 +194,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     return fit_result(spec=spec, method=fit_method, converged=opt.converged, iterations=opt.iterations, message=message,
                       theta=theta, n_obs=n, data=summary, observed=table.observed, latent=table.latent, fit=fit,
                       robust=robust, estimates=estimates, modification_indices=modification, groups=(group,),
-                      warnings=warnings, options=options)
+                      warnings=warnings, options=options, problems=problems)
 
 
 # ---------------------------------------------------------------- several groups
@@ -325,7 +331,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     warnings = []
     dropped = sum(m.rows_dropped for m in moments)
     if dropped:
-        warnings.append(f"{dropped} rows had a missing answer on a model variable and were left out (listwise deletion)")
+        warnings.append(f"{dropped} {'row' if dropped == 1 else 'rows'} had a missing answer on a model variable and "
+                        f"{'was' if dropped == 1 else 'were'} left out (listwise deletion)")
     fit = robust = inference = None
     modification_rows: list[ModificationIndex] = []
     shares = [None] * G
@@ -333,7 +340,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     if est.converged:
         D, e, w, gamma = obj.stacked(theta)
         check_information_rank(D @ (D.T * w[:, None]), table.free_labels)
-        inference = wald_inference(values, model.J, robust_covariance(D, w, gamma, n))
+        cov_theta = robust_covariance(D, w, gamma, n)
+        inference = wald_inference(values, model.J, cov_theta)
         df = est.df
         T = est.statistic
         slices = obj.group_slices()
@@ -360,12 +368,10 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         if modification and df > 0 and options.modification_indices:
             exo = exogenous_factors(spec)
             modification_rows = ordinal_score_tests(est, [candidate_entries(table, exo, g) for g in range(G)])
-        for g in range(G):
-            warnings.extend(f"group {table.groups[g]}: {w_}" for w_ in admissibility_warnings(mats[g], table.observed, table.latent))
         warnings.append(GROUPS_NOTE)
         warnings.append(ORDINAL_NOTE)
-    else:
-        warnings.append(f"the estimation did not converge ({est.message}); no result from it should be interpreted")
+    problems = solution_problems(table, list(mats), theta, cov_theta if est.converged else None, est.converged,
+                                 est.message, options.max_iterations)
     estimates = estimate_rows(table, values, inference, std_all, std_lv)
     group_results = []
     for g, (lab, m) in enumerate(groups):
@@ -376,7 +382,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         summary = DataSummary(mg.source, mg.rows_read, mg.rows_dropped, mg.n_obs, table.observed,
                               tuple(float(v) for v in mg.means), tuple(float(v) for v in mg.sds))
         factors, htmt = reliability(mats[g], table.observed, table.latent, mg.correlations,
-                                    declared=spec.reverse_keyed or None, sum_scores=False)
+                                    declared=spec.reverse_keyed or None, sum_scores=False, not_traits=spec.method_factors)
         if est.converged:
             warnings.extend(keying_warnings(factors, f"group {lab}: "))
         group_results.append(GroupResult(label=lab, data=summary, chi_square=shares[g], srmr=srmrs[g],
@@ -391,7 +397,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                       iterations=est.iterations, message=est.message, theta=theta, n_obs=n, data=total,
                       observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
                       modification_indices=modification_rows, groups=group_results, warnings=warnings, options=options,
-                      group_column=group_column)
+                      group_column=group_column, problems=problems)
 
 
 def fit_ordinal_groups(spec: Spec, groups: list, options, method: Weighting | str = Weighting.DIAGONAL,

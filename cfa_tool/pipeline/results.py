@@ -12,7 +12,7 @@ from cfa_tool.assessment.normality import Normality
 from cfa_tool.inference.robust import RobustFit
 from cfa_tool.method import FitMethod
 from cfa_tool.numerics.plain import clean
-from cfa_tool.views import Presentable
+from cfa_tool.views import Presentable, scorer
 
 DEFAULT_MI_THRESHOLD = 3.84  # chi-square(1) critical value at alpha = .05
 
@@ -28,7 +28,7 @@ class EstimateRow:
     p_value: float
     ci95: tuple[float, float]
     standardized: float
-    standardized_latent: float
+    standardized_factors_only: float
     origin: str
     group: str | None = None
 
@@ -45,7 +45,7 @@ class EstimateRow:
                 "p_value": self.p_value,
                 "ci95": list(self.ci95),
                 "standardized": self.standardized,
-                "standardized_latent": self.standardized_latent,
+                "standardized_factors_only": self.standardized_factors_only,
             }
         )
 
@@ -94,19 +94,23 @@ class DataSummary:
     variables: tuple[str, ...]
     means: tuple[float, ...]
     sds: tuple[float, ...]
+    answered: tuple[int, ...] = ()  # rows answering each item (empty when the raw rows are not at hand)
+    skewness: tuple[float, ...] = ()
+    kurtosis: tuple[float, ...] = ()  # excess kurtosis
 
     def to_dict(self) -> dict:
-        return clean(
-            {
-                "source": self.source,
-                "rows_read": self.rows_read,
-                "rows_dropped": self.rows_dropped,
-                "n_obs": self.n_obs,
-                "variables": list(self.variables),
-                "means": list(self.means),
-                "sds": list(self.sds),
-            }
-        )
+        out = {
+            "source": self.source,
+            "rows_read": self.rows_read,
+            "rows_dropped": self.rows_dropped,
+            "n_obs": self.n_obs,
+            "variables": list(self.variables),
+            "means": list(self.means),
+            "sds": list(self.sds),
+        }
+        if self.skewness:
+            out.update(answered=list(self.answered), skewness=list(self.skewness), excess_kurtosis=list(self.kurtosis))
+        return clean(out)
 
 
 @dataclass(frozen=True, eq=False)
@@ -179,6 +183,14 @@ class FitResult(Presentable):
     missing_data: dict | None = None  # coverage per item and missing-data patterns
     labels: dict | None = None  # variable and value labels from SPSS/Stata files
     description: object | None = None  # model.description.ModelDescription: what exactly was fitted
+    problems: tuple = ()  # assessment.admissibility.Problem: what makes the solution impossible or doubtful
+
+    @property
+    def admissible(self) -> bool:
+        """Whether the solution is possible at all: converged, and no problem that makes it inadmissible
+        (negative variances, correlations beyond +/-1, matrices not positive definite, estimates on a bound,
+        parameters the data barely determine)."""
+        return self.converged and not any(p.kind.inadmissible for p in self.problems)
 
     # -- single-group conveniences (the first group when there are several)
     @property
@@ -221,8 +233,11 @@ class FitResult(Presentable):
 
     def to_dict(self) -> dict:
         out = {
+            "admissible": self.admissible,
+            "problems": [p.to_dict() for p in self.problems],
             "converged": self.converged,
             "estimator": self.estimator,
+            "ordinal_items": self.method.ordinal,
             "n_obs": self.n_obs,
             "model": {"name": self.model_name, "source": self.model_source},
             "data": self.data.to_dict(),
@@ -262,11 +277,17 @@ class FitResult(Presentable):
         out["warnings"] = list(self.warnings)
         return out
 
+    def scores(self, data, **options):
+        """Factor scores of the rows of ``data`` (other data as well) with this fit's parameters; ``options``:
+        ``methods``, ``standard_errors``, ``id_column``, ``sheet``, ``missing_codes``, ``keep``
+        (see cfa_tool.workflows.factor_scores.score_with_fit)."""
+        return scorer()(self, data, **options)
+
 
 def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, message: str, theta: np.ndarray | None,
                n_obs: int, data: DataSummary, observed: tuple[str, ...], latent: tuple[str, ...], fit: FitIndices | None,
                robust: RobustFit | None, estimates, modification_indices, groups, warnings, options,
-               group_column: str | None = None) -> FitResult:
+               group_column: str | None = None, problems: tuple = ()) -> FitResult:
     """The one place a FitResult is assembled, for every estimator (continuous, incomplete and ordinal
     items, one group or several), from the estimation's and the assessment's pieces.  The model's
     names and text come from ``spec``, the estimator line from ``method``, the display settings of
@@ -278,5 +299,5 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         message=message, n_obs=n_obs, data=data, observed=observed, latent=latent, fit=fit, robust=robust,
         estimates=tuple(estimates), modification_indices=tuple(modification_indices), groups=groups,
         group_column=group_column, warnings=tuple(warnings), mi_threshold=options.mi_threshold, mi_top=options.mi_top,
-        theta=theta,
+        theta=theta, problems=tuple(problems),
     )

@@ -19,6 +19,7 @@ ROW_GAP = 130
 BOX_H = 34
 ELLIPSE_RY = 24
 RESIDUAL_R = 11
+PROBLEM_COLOUR = "#b3261e"  # parts of the drawing that show a problem of the solution
 
 
 def _box_width(name: str) -> float:
@@ -29,15 +30,28 @@ def _ellipse_rx(name: str) -> float:
     return max(42.0, 4.4 * len(name) + 22.0)
 
 
-def _label(x: float, y: float, text: str, size: int = 11, anchor: str = "middle", cls: str = "value") -> str:
-    return (f'<text class="{cls}" x="{x:.1f}" y="{y:.1f}" font-size="{size}" text-anchor="{anchor}" '
-            f'paint-order="stroke" stroke="#ffffff" stroke-width="3">{esc(text)}</text>')
+def _label(x: float, y: float, text: str, size: int = 11, anchor: str = "middle", cls: str = "value",
+           problem: bool = False) -> str:
+    colour = f' fill="{PROBLEM_COLOUR}" font-weight="bold"' if problem else ""
+    return (f'<text class="{cls}{" problem" if problem else ""}" x="{x:.1f}" y="{y:.1f}" font-size="{size}" '
+            f'text-anchor="{anchor}"{colour} paint-order="stroke" stroke="#ffffff" stroke-width="3">{esc(text)}</text>')
+
 
 
 def path_diagram(result, group: int = 0) -> str:
-    """The model of ``result`` (one group's standardized values) as an SVG document string."""
+    """The model of ``result`` (one group's standardized values) as an SVG document string.  Elements whose
+    parameter is part of a problem of the solution (a negative residual variance, a correlation beyond
+    +/-1, ...) are drawn in red with the class ``problem``."""
     label = result.groups[group].label
     rows = [r for r in result.estimates if r.group == label]
+    problems = getattr(result, "problems", ())
+
+    def flagged(kind: str, variables: tuple[str, ...]) -> bool:
+        return any(p.touches(kind, variables, label) for p in problems)
+
+    def stroke(kind: str, variables: tuple[str, ...], normal: str = "#333") -> str:
+        return f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if flagged(kind, variables) else f'stroke="{normal}"'
+
     observed, latent = list(result.observed), list(result.latent)
     obs_set = set(observed)
     loadings = [r for r in rows if r.kind == "loading"]
@@ -109,7 +123,8 @@ def path_diagram(result, group: int = 0) -> str:
         parts.append(f'<line class="loading" x1="{x1:.1f}" y1="{y1:.1f}" x2="{x2:.1f}" y2="{y2:.1f}" stroke="#333" '
                      f'stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
         lx, ly = x1 + 0.72 * (x2 - x1), y1 + 0.72 * (y2 - y1)
-        parts.append(_label(lx, ly + 4, unit(r.standardized, 2)))
+        impossible = result.groups[group].r_squared.get(target, 0.0) > 1.0  # R-squared above 1
+        parts.append(_label(lx, ly + 4, unit(r.standardized, 2), problem=impossible or flagged(r.kind, r.variables)))
     # covariances between factors (arcs above) and between residuals (arcs below)
     for r in rows:
         if r.kind == "factor_covariance":
@@ -117,20 +132,24 @@ def path_diagram(result, group: int = 0) -> str:
             xa, xb = sorted((centre[a], centre[b]))
             y = min(y_of[a], y_of[b]) - ELLIPSE_RY
             lift = _lift(xb - xa)
-            parts.append(_arc(xa, y, xb, y, -lift, "covariance"))
-            parts.append(_label((xa + xb) / 2, y - lift / 2 - 4, unit(r.standardized, 2)))
+            bad = flagged(r.kind, r.variables)
+            parts.append(_arc(xa, y, xb, y, -lift, "covariance", bad))
+            parts.append(_label((xa + xb) / 2, y - lift / 2 - 4, unit(r.standardized, 2), problem=bad))
         elif r.kind == "residual_covariance":
             a, b = r.variables
             xa, xb = sorted((centre[a], centre[b]))
             y = y_res + RESIDUAL_R
             drop = 20 + 0.08 * (xb - xa)
-            parts.append(_arc(xa, y, xb, y, drop, "residual-covariance"))
-            parts.append(_label((xa + xb) / 2, y + drop / 2 + 14, unit(r.standardized, 2)))
+            bad = flagged(r.kind, r.variables)
+            parts.append(_arc(xa, y, xb, y, drop, "residual-covariance", bad))
+            parts.append(_label((xa + xb) / 2, y + drop / 2 + 14, unit(r.standardized, 2), problem=bad))
     # factors
     for f in latent:
         rx = _ellipse_rx(f)
-        parts.append(f'<ellipse class="factor" cx="{centre[f]:.1f}" cy="{y_of[f]:.1f}" rx="{rx:.1f}" ry="{ELLIPSE_RY}" '
-                     f'fill="#eef3fb" stroke="#1f3b73" stroke-width="1.5"/>')
+        bad = flagged("factor_variance", (f,))
+        parts.append(f'<ellipse class="factor{" problem" if bad else ""}" cx="{centre[f]:.1f}" cy="{y_of[f]:.1f}" '
+                     f'rx="{rx:.1f}" ry="{ELLIPSE_RY}" fill="#eef3fb" '
+                     + (f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"/>' if bad else 'stroke="#1f3b73" stroke-width="1.5"/>'))
         parts.append(f'<text class="name" x="{centre[f]:.1f}" y="{y_of[f] + 4:.1f}" font-size="13" text-anchor="middle">{esc(f)}</text>')
     # disturbances of factors below higher-order factors
     for r in rows:
@@ -150,12 +169,15 @@ def path_diagram(result, group: int = 0) -> str:
                      f'fill="#ffffff" stroke="#333" stroke-width="1.3"/>')
         parts.append(f'<text class="name" x="{centre[name]:.1f}" y="{y_ind + BOX_H / 2 + 4:.1f}" font-size="12" '
                      f'text-anchor="middle">{esc(name)}</text>')
-        parts.append(f'<circle class="residual" cx="{centre[name]:.1f}" cy="{y_res:.1f}" r="{RESIDUAL_R}" fill="#fff" stroke="#333"/>')
+        bad = flagged("residual_variance", (name,))
+        parts.append(f'<circle class="residual{" problem" if bad else ""}" cx="{centre[name]:.1f}" cy="{y_res:.1f}" '
+                     f'r="{RESIDUAL_R}" fill="#fff" {stroke("residual_variance", (name,))}/>')
         parts.append(f'<line x1="{centre[name]:.1f}" y1="{y_res - RESIDUAL_R:.1f}" x2="{centre[name]:.1f}" y2="{y_ind + BOX_H:.1f}" '
                      f'stroke="#333" marker-end="url(#head)"/>')
         resid = next((r for r in rows if r.kind == "residual_variance" and r.variables[0] == name), None)
         if resid is not None:
-            parts.append(_label(centre[name] + RESIDUAL_R + 3, y_res + 4, unit(resid.standardized, 2), size=10, anchor="start"))
+            parts.append(_label(centre[name] + RESIDUAL_R + 3, y_res + 4, unit(resid.standardized, 2), size=10, anchor="start",
+                                problem=bad))
     parts.append("</svg>")
     return "\n".join(parts) + "\n"
 
@@ -165,10 +187,11 @@ def _lift(distance: float) -> float:
     return 26 + 0.12 * distance
 
 
-def _arc(x1: float, y1: float, x2: float, y2: float, bend: float, cls: str) -> str:
+def _arc(x1: float, y1: float, x2: float, y2: float, bend: float, cls: str, problem: bool = False) -> str:
     cx, cy = (x1 + x2) / 2, y1 + bend * 2
-    return (f'<path class="{cls}" d="M{x1:.1f},{y1:.1f} Q{cx:.1f},{cy:.1f} {x2:.1f},{y2:.1f}" fill="none" stroke="#555" '
-            f'stroke-width="1.1" marker-start="url(#head)" marker-end="url(#head)"/>')
+    look = f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if problem else 'stroke="#555" stroke-width="1.1"'
+    return (f'<path class="{cls}{" problem" if problem else ""}" d="M{x1:.1f},{y1:.1f} Q{cx:.1f},{cy:.1f} {x2:.1f},{y2:.1f}" '
+            f'fill="none" {look} marker-start="url(#head)" marker-end="url(#head)"/>')
 
 
 def _spread_factors(latent: list[str], level: dict[str, int], centre: dict[str, float]) -> None:

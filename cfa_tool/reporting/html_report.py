@@ -22,13 +22,20 @@ td.r,th.r{text-align:right;font-variant-numeric:tabular-nums} td.l,th.l{text-ali
 .summary{background:#f4f7fb;border-left:4px solid #1f3b73;padding:.8em 1em} pre{background:#f6f6f6;padding:.8em;overflow-x:auto}
 .diagram{overflow-x:auto;border:1px solid #ddd;padding:.5em} td.heat{text-align:right;min-width:3em}
 ul.warnings li{margin:.3em 0}
+.problems{background:#fdecea;border:2px solid #b3261e;padding:.6em 1em;margin:1em 0}
+.problems.caution-only{background:#fff7e6;border-color:#e0a030} .problems h2{border:none;margin:.2em 0;color:#b3261e}
+.problems li{margin:.35em 0} tr.problem td{background:#fdecea;color:#8c1d18;font-weight:bold}
+td.faint{color:#aaa}
 """
 
 
 def table_html(table: ReportTable) -> str:
     head = "".join(f'<th class="{a}">{esc(c)}</th>' for c, a in zip(table.columns, table.align))
-    body = "".join("<tr>" + "".join(f'<td class="{a}">{esc(v)}</td>' for v, a in zip(row, table.align)) + "</tr>"
-                   for row in table.rows)
+    faint = set(table.faint)
+    body = "".join(('<tr class="problem">' if k in table.flagged else "<tr>")
+                   + "".join(f'<td class="{a}{" faint" if (k, j) in faint else ""}">{esc(v)}</td>'
+                             for j, (v, a) in enumerate(zip(row, table.align))) + "</tr>"
+                   for k, row in enumerate(table.rows))
     note = f'<p class="note">{esc(table.note)}</p>' if table.note else ""
     return (f'<table id="{esc(table.key)}"><caption>{esc(table.title)}</caption><thead><tr>{head}</tr></thead>'
             f"<tbody>{body}</tbody></table>{note}")
@@ -56,9 +63,23 @@ def heat_map(result, group: int = 0) -> str:
             f'<thead><tr><th></th>{head}</tr></thead><tbody>{"".join(rows)}</tbody></table>')
 
 
+def problem_banner(result) -> str:
+    """The problems of the solution as a banner above everything else ('' when there are none)."""
+    notice = T.problem_notice(result)
+    if notice is None:
+        return ""
+    cls = "problems" if notice.inadmissible else "problems caution-only"
+    items = "".join(f"<li>{esc(line)}</li>" for line in notice.lines)
+    return f'<div class="{cls}" id="problems" role="alert"><h2>{esc(notice.heading)}</h2><ul>{items}</ul></div>'
+
+
 def result_tables_html(result) -> str:
-    """The tables of a fit, as an HTML fragment (also what notebooks show)."""
-    parts = []
+    """The tables of a fit, as an HTML fragment (also what notebooks show): the problems first, then
+    the rows used, then the tables."""
+    d = result.data
+    parts = [problem_banner(result)] if T.problem_notice(result) is not None else []
+    parts += [f'<p class="note">N = {d.n_obs} rows analysed of {d.rows_read} read'
+             f"{'' if not d.rows_dropped else f'; {d.rows_dropped} rows left out'}. {esc(T.status_line(result))}.</p>"]
     if result.fit is not None and result.converged:
         parts.append(table_html(T.fit_table(result)))
     for g, group in enumerate(result.groups):
@@ -74,6 +95,7 @@ def result_tables_html(result) -> str:
 def html_report(result) -> str:
     d = result.data
     sections = [
+        problem_banner(result),
         f"<h1>{esc(result.model_name)}</h1>",
         f'<p class="note">Model file {esc(result.model_source)}; data {esc(d.source)}; {d.n_obs} rows analysed of {d.rows_read} read'
         f"{'' if not d.rows_dropped else f', {d.rows_dropped} left out'}. {esc(T.status_line(result))}.</p>",
@@ -101,7 +123,7 @@ def html_report(result) -> str:
         if result.multigroup:
             sections.append(f"<h3>Group {esc(group.label)} (N = {group.data.n_obs})</h3>")
         sections.extend(table_html(t) for t in T.estimate_tables(result, g))
-        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.htmt_table(result, g),
+        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.distinct_table(result, g),
                       T.case_table(result, g)):
             if extra is not None:
                 sections.append(table_html(extra))
@@ -115,6 +137,10 @@ def html_report(result) -> str:
                         "a model changed that way needs confirmation in new data.</p>")
     sections.append("<h2>Data</h2>")
     sections.append(table_html(T.item_table(result)))
+    for g in range(len(result.groups)):
+        correlations = T.correlation_table(result, g)
+        if correlations is not None:
+            sections.append(table_html(correlations))
     missing = T.missing_table(result)
     if missing is not None:
         sections.append(table_html(missing))

@@ -12,6 +12,7 @@ that from the result's model description, never from a generic template.
 from __future__ import annotations
 
 from cfa_tool.method import FitTest, Items
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.reporting.numbers import unit
 
 CHI = "\u03c7\u00b2"
@@ -58,12 +59,25 @@ def _test_phrase(test: FitTest) -> str:
 
 
 def _structure(result, d) -> str:
-    n_first = len(d.first_order)
+    methods = set(d.method_factors)
+    traits = [f for f in d.first_order if f not in methods]
+    n_first = len(traits)
+    noun = "trait factor" if methods else "factor"
+    held = {frozenset(p) for p in d.uncorrelated}
+    pairs = [frozenset((a, b)) for i, a in enumerate(traits) for b in traits[i + 1:]]
     if n_first == 1:
-        factors = f"one factor ({d.first_order[0]})"
+        factors = f"one {noun} ({traits[0]})"
     else:
-        kind = "correlated factors" if d.correlated_factors else "factors"
-        factors = f"{_count(n_first, kind[:-1], kind)} ({_list(d.first_order)})"
+        if pairs and all(p in held for p in pairs):
+            kind = f"uncorrelated {noun}s"
+        elif d.correlated_factors and any(p not in held for p in pairs):
+            kind = f"correlated {noun}s"
+        else:
+            kind = f"{noun}s"
+        factors = f"{_count(n_first, kind[:-1], kind)} ({_list(traits)})"
+    if methods:
+        named = [f for f in d.first_order if f in methods]
+        factors += f" and {_count(len(named), 'method factor')} ({_list(named)})"
     text = f"{_count(len(d.indicators), 'indicator')} of {factors}"
     for higher, lower in d.higher_order:
         text += f", with a higher-order factor ({higher}) explaining {_list(lower)},"
@@ -115,8 +129,10 @@ def _scale_sentence(d) -> str:
 
 def _departures(d) -> str:
     parts = []
+    methods = set(d.method_factors)
     for item, factors in d.cross_loadings:
-        parts.append(f"a cross-loading of {item} (on {_list(list(factors))})")
+        if sum(f not in methods for f in factors) > 1:  # a loading on a method factor is not a cross-loading
+            parts.append(f"a cross-loading of {item} (on {_list(list(factors))})")
     if d.residual_covariances:
         n = len(d.residual_covariances)
         parts.append(f"{_count(n, 'residual covariance')} ({_list([_pair(p) for p in d.residual_covariances])})")
@@ -126,6 +142,11 @@ def _departures(d) -> str:
     sentences = []
     if parts:
         sentences.append(f"The model also included {_list(parts)}.")
+    if d.method_factors:
+        many = len(d.method_factors) > 1
+        sentences.append(f"The {'factors' if many else 'factor'} {_list(list(d.method_factors))} "
+                         f"{'stand' if many else 'stands'} for a way of answering, not a trait: "
+                         f"{'they get' if many else 'it gets'} no reliability or discriminant-validity coefficients.")
     if d.uncorrelated:
         pairs = _list([f"{a} and {b}" for a, b in d.uncorrelated])
         sentences.append(f"The covariance{'s' if len(d.uncorrelated) > 1 else ''} of {pairs} "
@@ -201,6 +222,18 @@ def methods_paragraph(result) -> str:
     else:
         parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
+    inadmissible = not result.admissible
+    if inadmissible:
+        serious = [p for p in result.problems if p.kind.inadmissible]
+        named = [p.phrase() for p in serious]
+        if all(p.kind is ProblemKind.ON_BOUND for p in serious):
+            parts.append(f"The solution lies on a boundary ({_list(named)}): the unrestricted estimate would lie beyond "
+                         f"the bound, so the solution is not admissible as it stands, and standard errors and tests "
+                         f"of parameters at a bound are not reliable.")
+        else:
+            parts.append(f"The solution was not admissible: it has {_list(named)}. Its estimates therefore cannot "
+                         f"describe a population and its fit is not evidence for the model; the values below are "
+                         f"reported only so that the problem can be judged.")
     parts.append(_fit_sentence(result))
     loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed]
     if loadings:
@@ -208,7 +241,7 @@ def methods_paragraph(result) -> str:
     corr = [r.standardized for r in result.estimates if r.kind == "factor_covariance"]
     if corr and not result.multigroup:
         parts.append(f"Factor correlations ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}.")
-    if result.fit.df > 0:
+    if result.fit.df > 0 and not inadmissible:
         parts.append("Fit was judged against conventional guide values (e.g., CFI \u2265 .95, RMSEA \u2264 .06, "
                      "SRMR \u2264 .08; Hu & Bentler, 1999), which are conventions rather than strict criteria.")
     return " ".join(parts)

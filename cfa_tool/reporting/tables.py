@@ -5,6 +5,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import numpy as np
+
 from cfa_tool.assessment.reliability import Keying
 from cfa_tool.reporting.numbers import missing, num, p_value, unit
 
@@ -38,11 +40,65 @@ class ReportTable:
     align: tuple[str, ...]  # "l" or "r" per column
     rows: tuple[tuple[str, ...], ...]
     note: str | None = None
+    flagged: tuple[int, ...] = ()  # rows that show a problem of the solution (marked in every format)
+    # the same content as numbers, for data files (CSV), where a cell such as '< .001' or '[.04, .09]' would be
+    # text: None when every text cell already reads as a number
+    value_columns: tuple[str, ...] | None = None
+    values: tuple[tuple, ...] | None = None
+    faint: tuple[tuple[int, int], ...] = ()  # (row, column) cells shown faintly (e.g. small loadings)
 
 
-def _table(key: str, title: str, columns: list[tuple[str, str]], rows: list[list[str]], note: str | None = None) -> ReportTable:
+def _table(key: str, title: str, columns: list[tuple[str, str]], rows: list[list[str]], note: str | None = None,
+           flagged: tuple[int, ...] = (), values: tuple[list[str], list[list]] | None = None) -> ReportTable:
     return ReportTable(key, title, tuple(c for c, _ in columns), tuple(a for _, a in columns),
-                       tuple(tuple(r) for r in rows), note)
+                       tuple(tuple(r) for r in rows), note, flagged,
+                       tuple(values[0]) if values else None, tuple(tuple(v) for v in values[1]) if values else None)
+
+
+@dataclass(frozen=True)
+class ProblemNotice:
+    """What every view of a result shows before anything else when the solution has problems."""
+
+    heading: str
+    lines: tuple[str, ...]
+    inadmissible: bool
+
+
+NOT_ADMISSIBLE = "This solution is not admissible: do not interpret its estimates or its fit"
+CAUTION = "Check before interpreting this solution"
+
+
+def problem_notice(result) -> ProblemNotice | None:
+    """The problems of ``result``'s solution as a heading and one line per problem (None when there are none)."""
+    problems = getattr(result, "problems", ())
+    if not problems:
+        return None
+    lines = tuple((f"Group {p.group}: " if p.group is not None else "") + f"{p.explanation} What to try: {p.advice}"
+                  for p in problems)
+    inadmissible = not result.admissible
+    return ProblemNotice(NOT_ADMISSIBLE if inadmissible else CAUTION, lines, inadmissible)
+
+
+def problem_table(result) -> ReportTable | None:
+    """The problems of the solution as a table (for data files, where the notice of the views cannot go)."""
+    notice = problem_notice(result)
+    if notice is None:
+        return None
+    rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameters),
+             "" if p.value is None else num(p.value), p.group or "", p.explanation, p.advice] for p in result.problems]
+    values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameters), p.value, p.group or "",
+               p.explanation, p.advice] for p in result.problems]
+    columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
+               ("Explanation", "l"), ("What to try", "l")]
+    return _table("problems", notice.heading, columns, rows, values=([c for c, _ in columns], values))
+
+
+def row_problem(result, kind: str, variables: tuple[str, ...], group: str | None) -> str:
+    """The few words a table row shows when its parameter is part of a problem ('' when it is not)."""
+    for p in getattr(result, "problems", ()):
+        if p.touches(kind, variables, group):
+            return p.kind.short
+    return ""
 
 
 def p_phrase(p) -> str:
@@ -81,41 +137,187 @@ def fit_table(result) -> ReportTable:
         rows += [["Log-likelihood", num(f.log_likelihood), ""],
                  ["AIC / BIC / adjusted BIC", f"{num(f.aic)} / {num(f.bic)} / {num(f.sabic)}", "lower is better"]]
     rows.append(["Free parameters", str(f.n_free_parameters), ""])
-    return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")], rows, GUIDE_NOTE)
+    return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")], rows, _unusable(result) + GUIDE_NOTE,
+                  values=(["Index", "Value", "df", "p", "90% lower", "90% upper"], _fit_values(result)))
+
+
+def _fit_values(result) -> list[list]:
+    """The fit table's numbers, one index per row (for data files)."""
+    f, r, nan = result.fit, result.robust, None
+    rows = [["Chi-square", f.chi_square, f.df, f.p_value, nan, nan]]
+    if f.df > 0:
+        rows += [["CFI", f.cfi, nan, nan, nan, nan], ["TLI", f.tli, nan, nan, nan, nan],
+                 ["RMSEA", f.rmsea, nan, nan, *f.rmsea_ci90]]
+        if not missing(f.rmsea_p_close):
+            rows.append(["Test of close fit (RMSEA <= .05)", nan, nan, f.rmsea_p_close, nan, nan])
+    rows.append(["SRMR", f.srmr, nan, nan, nan, nan])
+    if r is not None:
+        rows += [[f"Scaled chi-square ({r.test.label})", r.chi_square_scaled, r.df, r.p_value_scaled, nan, nan],
+                 ["Scaling factor", r.scaling_factor, nan, nan, nan, nan],
+                 ["Robust CFI", r.cfi_robust, nan, nan, nan, nan], ["Robust TLI", r.tli_robust, nan, nan, nan, nan],
+                 ["Robust RMSEA", r.rmsea_robust, nan, nan, *r.rmsea_robust_ci90]]
+    rows.append(["Baseline (independence) chi-square", f.baseline_chi_square, f.baseline_df, nan, nan, nan])
+    if not missing(f.log_likelihood):
+        rows += [["Log-likelihood", f.log_likelihood, nan, nan, nan, nan], ["AIC", f.aic, nan, nan, nan, nan],
+                 ["BIC", f.bic, nan, nan, nan, nan], ["Adjusted BIC", f.sabic, nan, nan, nan, nan]]
+    rows.append(["Free parameters", f.n_free_parameters, nan, nan, nan, nan])
+    return rows
+
+
+def _scale_phrase(result, factor: str) -> str:
+    """How a factor got its scale, in a few words for the heading of its block."""
+    d = result.description
+    scale = next((s for s in d.scales if s.factor == factor), None) if d is not None else None
+    if scale is None:
+        return ""
+    if scale.method == "marker" and scale.marker:
+        return f"scale: loading of {scale.marker} fixed at 1"
+    return {"variance": "scale: variance fixed at 1", "effects": "scale: loadings average 1",
+            "fixed by the model": "scale: fixed by the model"}.get(scale.method, f"scale: {scale.method}")
+
+
+def _interval(low: float, high: float) -> str:
+    return "" if missing(low) else f"[{num(low, 2)}, {num(high, 2)}]"
+
+
+def _factor_block(result, group: int, k: int, factor: str, rows: list, residual: dict, problems: list[str]
+                  ) -> ReportTable:
+    """One factor: each indicator's standardized loading first, then the loading with its SE, interval and p,
+    the indicator's R-squared and its error variance (for a higher-order factor: the lower factor's
+    disturbance variance)."""
+    label = result.groups[group].label
+    r_squared = result.groups[group].r_squared
+    observed = set(result.observed)
+    higher = any(r.variables[1] not in observed for r in rows)
+    mark_any = any(problems)
+    columns = [("Factor" if higher else "Item", "l"), ("Std.", "r"), ("Loading", "r"), ("SE", "r"), ("95% CI", "r"),
+               ("p", "r")] + ([] if higher else [("R²", "r")]) + [
+        ("Disturbance" if higher else "Error variance", "r")] + ([("Problem", "l")] if mark_any else [])
+    body, numbers = [], []
+    for r, mark in zip(rows, problems):
+        target = r.variables[1]
+        rest = residual.get(target)
+        r2 = r_squared.get(target)
+        cells = [target, unit(r.standardized, 2) if abs(r.standardized) <= 1 else num(r.standardized, 2),
+                 num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value)]
+        if not higher:
+            cells.append("" if r2 is None else (unit(r2, 2) if 0 <= r2 <= 1 else num(r2, 2)))
+        cells.append(num(rest.estimate) if rest is not None else "")
+        if mark_any:
+            cells.append(mark)
+        body.append(cells)
+        numbers.append([target, r.standardized, r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
+                        r.ci95[1], "yes" if r.free else "no", r2 if not higher else None,
+                        rest.estimate if rest is not None else None, rest.se if rest is not None and rest.free else None,
+                        rest.p_value if rest is not None else None] + ([mark] if mark_any else []))
+    value_columns = [columns[0][0], "Standardized loading", "Loading", "SE", "z", "p", "95% CI lower", "95% CI upper",
+                     "Free", "R²", "Error variance" if not higher else "Disturbance variance", "Its SE", "Its p"] + (
+        ["Problem"] if mark_any else [])
+    scale = _scale_phrase(result, factor)
+    title = f"Factor {factor}" + (f" ({scale})" if scale else "")
+    suffix = "" if label is None else f"_{group}"
+    return _table(f"factor_{k + 1}{suffix}", title, columns, body, flagged=tuple(i for i, m in enumerate(problems) if m),
+                  values=(value_columns, numbers))
+
+
+def _factor_matrix(result, group: int) -> ReportTable | None:
+    """The factors' variances (diagonal) and correlations (below it) as one small matrix; each covariance
+    with its SE and interval in the data-file version."""
+    label = result.groups[group].label
+    latent = list(result.latent)
+    if not latent:
+        return None
+    variance = {r.variables[0]: r for r in result.estimates if r.kind == "factor_variance" and r.group == label}
+    pairs = {frozenset(r.variables): r for r in result.estimates if r.kind == "factor_covariance" and r.group == label}
+    body, flagged = [], []
+    for i, a in enumerate(latent):
+        row = [f"{i + 1} {a}"]
+        bad = False
+        for j, b in enumerate(latent[: i + 1]):
+            if i == j:
+                v = variance.get(a)
+                row.append(num(v.estimate) if v is not None else "")
+                bad |= v is not None and bool(row_problem(result, "factor_variance", (a,), label))
+            else:
+                c = pairs.get(frozenset((a, b)))
+                row.append(unit(c.standardized, 2) if c is not None and abs(c.standardized) <= 1 else
+                           (num(c.standardized, 2) if c is not None else "0"))
+                bad |= c is not None and bool(row_problem(result, "factor_covariance", c.variables, label))
+        row += [""] * (len(latent) - i - 1)
+        body.append(row)
+        if bad:
+            flagged.append(i)
+    numbers = [[r.variables[0], r.variables[0], r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
+                r.ci95[1], r.standardized] for r in variance.values()]
+    numbers += [[*r.variables, r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0], r.ci95[1],
+                 r.standardized] for r in pairs.values()]
+    suffix = "" if label is None else f"_{group}"
+    note = "Diagonal: variances; below: correlations." if len(latent) > 1 else None
+    return _table(f"factors{suffix}", "Factor variances and correlations",
+                  [("", "l")] + [(str(k + 1), "r") for k in range(len(latent))], body, note, tuple(flagged),
+                  values=(["Factor", "With", "Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper",
+                           "Standardized (correlation)"], numbers))
 
 
 def estimate_tables(result, group: int = 0) -> list[ReportTable]:
+    """The estimates of one group: a block per factor, the factors' variance-correlation matrix, then
+    residual covariances, intercepts, factor means and thresholds."""
     tables = []
     label = result.groups[group].label
     r_squared = result.groups[group].r_squared
     suffix = "" if label is None else f"_{group}"
+    residual = {r.variables[0]: r for r in result.estimates if r.kind == "residual_variance" and r.group == label}
+    loadings = [r for r in result.estimates if r.kind == "loading" and r.group == label]
+    for k, factor in enumerate(result.latent):
+        rows = [r for r in loadings if r.variables[0] == factor]
+        if not rows:
+            continue
+        marks = []
+        for r in rows:
+            target = r.variables[1]
+            mark = row_problem(result, "loading", r.variables, label) or row_problem(
+                result, "residual_variance", (target,), label)
+            if not mark and r_squared.get(target, 0.0) > 1.0:
+                mark = "R² above 1: impossible"
+            marks.append(mark)
+        tables.append(_factor_block(result, group, k, factor, rows, residual, marks))
+    matrix = _factor_matrix(result, group)
+    if matrix is not None:
+        tables.append(matrix)
     for kind, title in KIND_TITLES.items():
+        if kind in ("loading", "factor_variance", "factor_covariance", "residual_variance"):
+            continue
         rows = [r for r in result.estimates if r.kind == kind and r.group == label]
         if not rows:
             continue
-        first = "Factor" if kind == "loading" else "Variable"
-        cols = [(first, "l")]
-        if kind in ("loading", "factor_covariance", "residual_covariance", "threshold"):
-            cols.append(({"loading": "Indicator", "threshold": "Step"}.get(kind, "With"), "l"))
-        cols += [("Estimate", "r"), ("SE", "r"), ("z", "r"), ("p", "r"), ("95% CI", "r"), ("Standardized", "r")]
-        if kind == "loading":
-            cols.append(("R²", "r"))
-        body = []
+        cols = [("Variable", "l")]
+        if kind in ("residual_covariance", "threshold"):
+            cols.append(({"threshold": "Step"}.get(kind, "With"), "l"))
+        cols += [("Estimate", "r"), ("SE", "r"), ("95% CI", "r"), ("p", "r"), ("Std.", "r")]
+        marks = [row_problem(result, kind, r.variables, r.group) for r in rows]
+        if any(marks):
+            cols.append(("Problem", "l"))
+        body, numbers = [], []
         previous = None
-        for r in rows:
+        for r, mark in zip(rows, marks):
+            numbers.append(list(r.variables) + [r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
+                                                r.ci95[1], r.standardized, "yes" if r.free else "no"]
+                           + ([mark] if any(marks) else []))
             names = list(r.variables)
-            if kind in ("loading", "threshold"):
+            if kind == "threshold":
                 shown = names[0] if names[0] != previous else ""
                 previous = names[0]
                 names[0] = shown
-            ci = "" if missing(r.ci95[0]) else f"[{num(r.ci95[0])}, {num(r.ci95[1])}]"
-            cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", num(r.z, 2), p_value(r.p_value), ci,
-                             num(r.standardized)]
-            if kind == "loading":
-                r2 = r_squared.get(r.variables[1])
-                cells.append(num(r2) if r2 is not None else "")
+            cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value),
+                             num(r.standardized, 2)]
+            if any(marks):
+                cells.append(mark)
             body.append(cells)
-        tables.append(_table(kind + suffix, title, cols, body))
+        value_columns = [c for c, _ in cols[:len(rows[0].variables)]] + [
+            "Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper", "Standardized", "Free"] + (
+            ["Problem"] if any(marks) else [])
+        tables.append(_table(kind + suffix, title, cols, body, flagged=tuple(i for i, m in enumerate(marks) if m),
+                             values=(value_columns, numbers)))
     return tables
 
 
@@ -141,11 +343,16 @@ def missing_table(result) -> ReportTable | None:
     summary = result.missing_data
     if not summary:
         return None
-    rows = [[p["pattern"], str(p["rows"])] for p in summary["patterns"][:8]]
+    def named(items: list[str]) -> str:
+        if not items:
+            return "(none: complete rows)"
+        return ", ".join(items[:6]) + (f" and {len(items) - 6} more" if len(items) > 6 else "")
+
+    rows = [[named(p["not_answered"]), str(p["rows"])] for p in summary["patterns"][:8]]
     low = sorted(summary["coverage"].items(), key=lambda kv: kv[1])[:5]
     note = f"{summary['n_patterns']} patterns. Lowest coverage: " + ", ".join(f"{name} {100 * share:.1f}%" for name, share in low)
     return _table("missing", "Missing answers",
-                  [("Pattern of answers (x) and gaps (.), items in model order", "l"), ("Rows", "r")], rows, note)
+                  [("Items not answered", "l"), ("Rows", "r")], rows, note)
 
 
 def modification_table(result, limit: int = 10) -> ReportTable | None:
@@ -159,29 +366,96 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
         where = f" in {m.group}" if m.group is not None else ""
         body.append([f"{m.kind.replace('_', ' ')} {', '.join(m.variables)}{where}", num(m.index, 2), num(m.expected_change),
                      num(m.standardized_expected_change)])
+    note = ("Standardized: for loadings on the fully standardized metric; for residual covariances on the residual "
+            "correlation metric (the expected change over the two residual standard deviations).")
+    beyond = [m for m in shown if m.kind == "residual_covariance" and abs(m.standardized_expected_change) > 1]
+    if beyond:
+        note += (f" {len(beyond)} expected residual correlation{'s are' if len(beyond) > 1 else ' is'} beyond +/-1: the "
+                 "expected change is a linear approximation that fails this far from the current estimate, so only a "
+                 "refit shows the value the parameter would take.")
     return _table("modification", title, [("Parameter that could be freed", "l"), ("Index", "r"), ("Expected change", "r"),
-                                          ("Standardized", "r")], body)
+                                          ("Standardized", "r")], body, note)
 
 
 def reliability_table(result, group: int = 0) -> ReportTable | None:
+    """How reliable are the scale scores: omega (hierarchical for a higher-order factor), omega total, alpha
+    and composite reliability, per factor."""
     rows = result.groups[group].reliability
     if not rows:
         return None
-    body = []
-    for r in rows:
-        fl = "" if r.fornell_larcker_holds is None else ("yes" if r.fornell_larcker_holds else "no")
-        body.append([r.factor, str(len(r.items)), unit(r.omega), unit(r.omega_total), unit(r.composite_reliability),
-                     unit(r.average_variance_extracted), fl, unit(r.alpha)])
+    body = [[r.factor, str(len(r.items)), unit(r.omega), unit(r.omega_total), unit(r.alpha),
+             unit(r.composite_reliability)] for r in rows]
     ordinal = result.method.ordinal
     note = (("Ordinal versions, on the latent responses behind the items (alpha from the polychoric correlations). "
              if ordinal else "") + keying_sentence(rows) +
             "Omega: share of the keyed item sum's variance due to the factor (for a higher-order factor: omega "
-            "hierarchical); omega total: due to all factors; CR: composite reliability; AVE: average variance extracted; "
-            "'sqrt(AVE) > r': the Fornell-Larcker comparison with every other factor; alpha from the sample covariances "
-            "of the keyed items.")
-    return _table(f"reliability_{group}", "Reliability and validity" + (" (ordinal)" if ordinal else ""),
-                  [("Factor", "l"), ("Items", "r"), ("Omega", "r"), ("Omega total", "r"), ("CR", "r"), ("AVE", "r"),
-                   ("sqrt(AVE) > r", "l"), ("Alpha", "r")], body, note)
+            "hierarchical); omega total: due to all factors; alpha from the "
+            + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
+            "composite reliability from the standardized loadings.")
+    methods = result.description.method_factors if result.description is not None else ()
+    if methods:
+        note += (f" Method factors ({', '.join(methods)}) stand for a way of answering, not a trait: they get no "
+                 f"coefficients and take no part in the Fornell-Larcker and HTMT comparisons.")
+    return _table(f"reliability_{group}", "How reliable are the scale scores?" + (" (ordinal)" if ordinal else ""),
+                  [("Factor", "l"), ("Items", "r"), ("Omega", "r"), ("Omega total", "r"), ("Alpha", "r"),
+                   ("Composite reliability", "r")], body, _unusable(result) + note, _all_if_unusable(result, body))
+
+
+def _unusable(result) -> str:
+    """The first words of a note under coefficients computed from an impossible solution."""
+    return ("" if result.admissible else "NOT INTERPRETABLE: the solution is not admissible, so these values come "
+                                         "from impossible estimates (see the problems at the top). ")
+
+
+def _all_if_unusable(result, body) -> tuple[int, ...]:
+    return () if result.admissible else tuple(range(len(body)))
+
+
+def distinct_table(result, group: int = 0) -> ReportTable | None:
+    """Are the factors distinct: per pair of trait factors their correlation (with its interval when the
+    factors are scaled by their variances), the heterotrait-monotrait ratio and the Fornell-Larcker comparison."""
+    g = result.groups[group]
+    traits = {r.factor: r for r in g.reliability if r.average_variance_extracted is not None}
+    htmt = {(h.first, h.second): h for h in g.htmt}
+    if len(traits) < 2:
+        return None
+    correlations = {}
+    for r in result.estimates:
+        if r.kind == "factor_covariance" and r.group == g.label:
+            correlations[frozenset(r.variables)] = r
+    unit_variance = {r.variables[0] for r in result.estimates
+                     if r.kind == "factor_variance" and r.group == g.label and not r.free and r.estimate == 1.0}
+    body, reasons = [], []
+    names = list(traits)
+    for i, a in enumerate(names):
+        for b in names[i + 1:]:
+            row = correlations.get(frozenset((a, b)))
+            r = row.standardized if row is not None else 0.0
+            interval = ""
+            if row is not None and row.free and {a, b} <= unit_variance:  # the covariance is the correlation
+                interval = f"[{unit(row.ci95[0], 2)}, {unit(row.ci95[1], 2)}]"
+            h = htmt.get((a, b)) or htmt.get((b, a))
+            ratio = "" if h is None or h.ratio is None else unit(h.ratio, 2)
+            if h is not None and h.ratio is None:
+                reasons.append(f"HTMT of {a} and {b}: {h.why_missing}.")
+            ave_a, ave_b = traits[a].average_variance_extracted, traits[b].average_variance_extracted
+            holds = ave_a ** 0.5 > abs(r) and ave_b ** 0.5 > abs(r)
+            body.append([a, b, unit(r, 2), interval, ratio, f"{unit(ave_a, 2)} / {unit(ave_b, 2)}",
+                         "yes" if holds else "no"])
+    note = ("HTMT: heterotrait-monotrait ratio of the keyed items, in absolute value (Henseler, Ringle & Sarstedt "
+            "2015); common practice reads values above .85 (or .90) as a sign that two factors are not distinct. "
+            "sqrt(AVE) > |r|: both factors' average variance extracted exceeds their squared correlation (Fornell & "
+            "Larcker 1981). The interval of a correlation is shown when both factors are scaled by their variances "
+            "(then their covariance is the correlation).")
+    if reasons:
+        note += " " + " ".join(reasons)
+    columns = [("Factor", "l"), ("Factor", "l"), ("r", "r"), ("95% CI", "r"), ("HTMT", "r"), ("AVE", "r"),
+               ("sqrt(AVE) > |r|", "l")]
+    if not any(row[3] for row in body):  # no interval to show (factors scaled by a marker or effects coding)
+        columns.pop(3)
+        body = [row[:3] + row[4:] for row in body]
+    return _table(f"distinct_{group}", "Are the factors distinct?", columns, body, _unusable(result) + note,
+                  _all_if_unusable(result, body))
 
 
 def keying_sentence(rows) -> str:
@@ -211,44 +485,78 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
                    ("Lowest item-rest r", "r")], body, note)
 
 
-def htmt_table(result, group: int = 0) -> ReportTable | None:
-    pairs = result.groups[group].htmt
-    if not pairs:
-        return None
-    return _table(f"htmt_{group}", "Heterotrait-monotrait ratios",
-                  [("Factor", "l"), ("Factor", "l"), ("HTMT", "r")], [[h.first, h.second, unit(h.ratio, 2)] for h in pairs],
-                  "Henseler, Ringle & Sarstedt (2015), on the keyed items, in absolute value. Common practice reads "
-                  "values above .85 (or .90) as a sign that two factors are not distinct.")
-
-
 def case_table(result, group: int = 0) -> ReportTable | None:
     cases = result.groups[group].influential_cases
     if not cases:
         return None
+    named = any(c.id is not None for c in cases)
+    ids = [[c.id or ""] if named else [] for c in cases[:5]]
     return _table(f"cases_{group}", "Rows that contribute most to the chi-square",
-                  [("Data row", "r"), ("Share of chi-square", "r"), ("Squared Mahalanobis distance", "r"), ("p", "r")],
-                  [[str(c.row), num(c.chi_square_share, 2), num(c.mahalanobis, 2), p_value(c.p_value)] for c in cases[:5]],
-                  "Each row's share sums over all rows to the chi-square; large shares and distances point at rows worth checking.")
+                  [("Data row", "r")] + ([("Id", "l")] if named else [])
+                  + [("Share of chi-square", "r"), ("Squared Mahalanobis distance", "r"), ("p", "r")],
+                  [[str(c.row), *i, num(c.chi_square_share, 2), num(c.mahalanobis, 2), p_value(c.p_value)]
+                   for c, i in zip(cases[:5], ids)],
+                  "Each row's share sums over all rows to the chi-square; large shares and distances point at rows worth checking.",
+                  values=(["Data row"] + (["Id"] if named else []) + ["Share of chi-square", "Squared Mahalanobis distance", "p"],
+                          [[c.row, *i, c.chi_square_share, c.mahalanobis, c.p_value] for c, i in zip(cases[:5], ids)]))
 
 
 def item_table(result) -> ReportTable:
-    d = result.data
+    """The descriptives table: per item the rows answering it, mean, SD, skewness, excess kurtosis and, with
+    raw rows, its factor, keying and corrected item-total correlation."""
+    d = result.data if result.multigroup else result.groups[0].data
     rest: dict[str, tuple[str, float, bool]] = {}  # item -> (factor, corrected item-total r, reversed)
     if not result.multigroup:
         for r in result.groups[0].reliability:
             for item, value in zip(r.items, r.item_total):
                 rest.setdefault(item, (r.factor, value, item in r.reversed))
-    if not rest:
-        return _table("items", "Items (analysed rows)", [("Item", "l"), ("Mean", "r"), ("SD", "r")],
-                      [[name, num(m, 2), num(s, 2)] for name, m, s in zip(d.variables, d.means, d.sds)])
-    body = []
-    for name, m, s in zip(d.variables, d.means, d.sds):
-        factor, value, flipped = rest.get(name, ("", float("nan"), False))
-        body.append([name, num(m, 2), num(s, 2), factor, "reversed" if flipped else "", unit(value, 2)])
-    return _table("items", "Items (analysed rows)",
-                  [("Item", "l"), ("Mean", "r"), ("SD", "r"), ("Factor", "l"), ("Keying", "l"), ("Item-rest r", "r")],
-                  body, "Item-rest r: the correlation of the (keyed) item with the keyed sum of the other items of its "
-                        "factor (corrected item-total correlation).")
+    shape = bool(d.skewness)
+    # SDs with divisor N - 1, as descriptive tables report them (the model uses divisor N)
+    stretch = (d.n_obs / (d.n_obs - 1)) ** 0.5 if d.n_obs > 1 else 1.0
+    columns = [("Item", "l")] + ([("N", "r")] if shape else []) + [("Mean", "r"), ("SD", "r")]
+    columns += [("Skewness", "r"), ("Excess kurtosis", "r")] if shape else []
+    columns += [("Factor", "l"), ("Keying", "l"), ("Item-rest r", "r")] if rest else []
+    body, values = [], []
+    for k, (name, m, s) in enumerate(zip(d.variables, d.means, d.sds)):
+        row = [name] + ([str(d.answered[k])] if shape else []) + [num(m, 2), num(s * stretch, 2)]
+        numbers = [name] + ([d.answered[k]] if shape else []) + [m, s * stretch]
+        if shape:
+            row += [num(d.skewness[k], 2), num(d.kurtosis[k], 2)]
+            numbers += [d.skewness[k], d.kurtosis[k]]
+        if rest:
+            factor, value, flipped = rest.get(name, ("", float("nan"), False))
+            row += [factor, "reversed" if flipped else "", unit(value, 2)]
+            numbers += [factor, "reversed" if flipped else "", value]
+        body.append(row)
+        values.append(numbers)
+    note = "SD with divisor N - 1."
+    if shape:
+        note += (" Skewness g1 and excess kurtosis g2 (moment estimators; 0 for a normal distribution), each from "
+                 "the rows answering the item.")
+    if rest:
+        note += (" Item-rest r: the correlation of the (keyed) item with the keyed sum of the other items of its "
+                 "factor (corrected item-total correlation).")
+    return _table("items", "Items: descriptive statistics (analysed rows)", columns, body, note,
+                  values=([c for c, _ in columns], values))
+
+
+def correlation_table(result, group: int = 0) -> ReportTable | None:
+    """The items' sample correlations (lower triangle), with the number of rows they come from."""
+    names = result.observed
+    if len(names) > MAX_RESIDUAL_MATRIX or len(names) < 2:
+        return None
+    g = result.groups[group]
+    S = g.sample_covariance
+    sd = np.sqrt(np.clip(np.diag(S), 1e-300, None))
+    r = S / np.outer(sd, sd)
+    rows = [[f"{i + 1} {name}"] + [unit(r[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
+            for i, name in enumerate(names) if i > 0]
+    where = f" in group {g.label}" if g.label is not None else ""
+    return _table(f"correlations_{group}", f"Correlations of the items{where} (N = {g.data.n_obs})",
+                  [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows,
+                  "For ordinal items: polychoric (and polyserial) correlations. With full-information estimation: "
+                  "the saturated model's estimates from every answer." if (result.missing_data or
+                                                                           result.method.ordinal) else None)
 
 
 def normality_lines(result) -> list[str]:

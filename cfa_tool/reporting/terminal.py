@@ -6,6 +6,7 @@ import io
 
 from rich import box
 from rich.console import Console
+from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
@@ -39,12 +40,21 @@ def _table(title: str, columns: list[tuple[str, str]]) -> Table:
 
 def rich_table(report: ReportTable) -> Table:
     table = _table(report.title, [(c, "left" if a == "l" else "right") for c, a in zip(report.columns, report.align)])
-    for row in report.rows:
-        table.add_row(*row)
+    faint = set(report.faint)
+    for k, row in enumerate(report.rows):
+        cells = [Text(v, style="dim") if (k, j) in faint else v for j, v in enumerate(row)]
+        table.add_row(*cells, style="bold red" if k in report.flagged else None)
     if report.note and report.key not in ("fit",):
         table.caption = report.note
         table.caption_justify = "left"
     return table
+
+
+def problem_panel(notice: T.ProblemNotice) -> Panel:
+    """The boxed problems section that comes before any table."""
+    body = Text("\n".join(f"- {line}" for line in notice.lines))
+    return Panel(body, title=Text(notice.heading, style="bold"), title_align="left",
+                 border_style="red" if notice.inadmissible else "yellow", box=box.HEAVY if notice.inadmissible else box.ROUNDED)
 
 
 def render(result, console: Console) -> None:
@@ -54,6 +64,10 @@ def render(result, console: Console) -> None:
     console.print(f"Data: {d.source}; {d.n_obs} rows analysed of {d.rows_read} read")
     console.print(T.status_line(result))
     console.print()
+    notice = T.problem_notice(result)
+    if notice is not None:
+        console.print(problem_panel(notice))
+        console.print()
     missing = T.missing_table(result)
     if missing is not None:
         console.print(rich_table(missing))
@@ -73,7 +87,7 @@ def render(result, console: Console) -> None:
             console.print(Text(f"Group {group.label} (N = {group.data.n_obs})", style="bold reverse"))
         for table in T.estimate_tables(result, g):
             console.print(rich_table(table))
-        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.htmt_table(result, g),
+        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.distinct_table(result, g),
                       T.residual_table(result, g), T.case_table(result, g)):
             if extra is not None:
                 console.print(rich_table(extra))

@@ -5,6 +5,9 @@ from __future__ import annotations
 import csv
 import io
 
+import numpy as np
+
+from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import latex_text, markdown_text
 from cfa_tool.reporting.paragraph import methods_paragraph
@@ -19,32 +22,18 @@ def all_tables(result) -> list[ReportTable]:
             out.append(T.group_table(result))
     for g in range(len(result.groups)):
         out.extend(T.estimate_tables(result, g))
-        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.htmt_table(result, g),
+        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.distinct_table(result, g),
                       T.residual_table(result, g), T.case_table(result, g)):
             if extra is not None:
                 out.append(extra)
     for extra in (T.modification_table(result), T.item_table(result), T.missing_table(result)):
         if extra is not None:
             out.append(extra)
+    for g in range(len(result.groups)):
+        correlations = T.correlation_table(result, g)
+        if correlations is not None:
+            out.append(correlations)
     return out
-
-
-# what spreadsheets run as a formula at the start of a cell, also in the full-width forms that some
-# locales' spreadsheet programs accept
-_FORMULA_START = ("=", "+", "-", "@", "\t", "\r", "\uff1d", "\uff0b", "\uff0d", "\uff20")
-
-
-def csv_cell(value) -> str:
-    """A cell for a CSV table: text that a spreadsheet would run as a formula (it starts with =, +, -,
-    @, a tab or a carriage return) gets a leading single quote, the common guard; numbers stay
-    numbers (-0.52 is a number, not a formula)."""
-    text = str(value)
-    if text.startswith(_FORMULA_START):
-        try:
-            float(text)
-        except ValueError:
-            return "'" + text
-    return text
 
 
 def markdown_table(table: ReportTable) -> str:
@@ -61,9 +50,12 @@ def markdown_table(table: ReportTable) -> str:
 
 
 def markdown_report(result) -> str:
-    parts = [f"# {markdown_text(result.model_name)}", "",
-             markdown_text(f"Data: {result.data.source}; {result.data.n_obs} rows analysed of {result.data.rows_read} read. "
-                           f"{T.status_line(result)}."), "",
+    parts = [f"# {markdown_text(result.model_name)}", ""]
+    notice = T.problem_notice(result)
+    if notice is not None:
+        parts += [f"## {markdown_text(notice.heading)}", ""] + [f"- {markdown_text(line)}" for line in notice.lines] + [""]
+    parts += [markdown_text(f"Data: {result.data.source}; {result.data.n_obs} rows analysed of {result.data.rows_read} read. "
+                            f"{T.status_line(result)}."), "",
              "## Summary for a paper", "", markdown_text(methods_paragraph(result)), ""]
     for line in T.normality_lines(result):
         parts += [markdown_text(line), ""]
@@ -75,11 +67,30 @@ def markdown_report(result) -> str:
     return "\n".join(parts)
 
 
+def _csv_number(value) -> str:
+    """A number as a data file holds it: full precision, a missing value empty."""
+    if value is None:
+        return ""
+    if isinstance(value, (bool, np.bool_)):
+        return "yes" if value else "no"
+    if isinstance(value, (int, np.integer)):
+        return str(int(value))
+    if isinstance(value, (float, np.floating)):
+        return "" if not np.isfinite(value) else repr(float(value))
+    return csv_cell(value)
+
+
 def csv_table(table: ReportTable) -> str:
+    """A table as CSV: numbers as numbers (the table's values when it has them: p-values and interval ends in
+    their own columns), text guarded against spreadsheet formulas."""
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow([csv_cell(c) for c in table.columns])
-    writer.writerows([csv_cell(v) for v in row] for row in table.rows)
+    if table.values is not None:
+        writer.writerow([csv_cell(c) for c in table.value_columns])
+        writer.writerows([_csv_number(v) for v in row] for row in table.values)
+    else:
+        writer.writerow([csv_cell(c) for c in table.columns])
+        writer.writerows([csv_cell(v) for v in row] for row in table.rows)
     return buffer.getvalue()
 
 

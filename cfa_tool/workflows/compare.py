@@ -11,7 +11,7 @@ from cfa_tool.pipeline.inputs import (load_spec, make_options, moments_for, ordi
                           read_inputs_with_notes, refuse_row_options, summary_source)
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.summary_stats import read_summary_file
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import OptionError, estimation_of
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import fit_moments, ordered_moments
 from cfa_tool.inference.robust import robust_parts
@@ -44,7 +44,8 @@ class Comparison:
             "n_obs": self.n_obs,
             "rows_dropped": self.rows_dropped,
             "models": [
-                {"name": name, "source": r.model_source, "converged": r.converged,
+                {"name": name, "source": r.model_source, "converged": r.converged, "admissible": r.admissible,
+                 "problems": [p.to_dict() for p in r.problems],
                  "fit": clean(r.fit.to_dict()) if r.fit is not None and r.converged else None,
                  "robust": clean(r.robust.to_dict()) if r.robust is not None and r.converged else None}
                 for name, r in zip(self.names, self.results)
@@ -97,10 +98,11 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                 ordinal_estimator, dropped)
     results = []
     data_groups = []
-    for spec in specs:
+    for spec, name in zip(specs, names):
         groups, _ = moments_for(spec, complete, source, group, reference_group)
         data_groups.append(groups)
-        results.append(fit_moments(spec, groups, fit_options, group_column=group))
+        with estimation_of(f"model {name}"):
+            results.append(fit_moments(spec, groups, fit_options, group_column=group))
     tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped)
 
@@ -128,9 +130,10 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
         raise OptionError("summary statistics allow only the normal-theory test")
     moments, _ = read_summary_file(path)
     results = []
-    for spec in specs:
+    for spec, name in zip(specs, names):
         check_columns(spec, list(moments.names), moments.source)
-        results.append(fit_moments(spec, moments, fit_options))
+        with estimation_of(f"model {name}"):
+            results.append(fit_moments(spec, moments, fit_options))
     tests, not_nested = _pairwise_tests(specs, names, results, [[(None, moments)]] * len(specs))
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), moments.n_obs, 0)
 

@@ -11,16 +11,18 @@ practice, not tests.
 
 from __future__ import annotations
 
+import enum
 from dataclasses import dataclass, replace
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 
 from cfa_tool.pipeline.inputs import (check_ordinal_options, make_options, moments_for, ordinal_estimator_option, ordinal_groups,
                           ordinal_items_of, read_inputs)
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import EstimationError, OptionError
 from cfa_tool.pipeline.continuous import assess, estimate
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
@@ -44,15 +46,55 @@ ORDINAL_LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
 )
 CFI_GUIDE = -0.01  # Cheung & Rensvold (2002)
 RMSEA_GUIDE = 0.015  # Chen (2007)
+#: Chen (2007): an increase in SRMR of .030 or more at the loadings step, .010 or more at the steps after it
+SRMR_GUIDE = {"metric": 0.030}
+SRMR_GUIDE_LATER = 0.010
+
+
+class DecisionRule(enum.Enum):
+    """How each step after the configural one is judged; ``value`` is the word users give."""
+
+    def __new__(cls, word: str, description: str):
+        member = object.__new__(cls)
+        member._value_ = word
+        member.description = description
+        return member
+
+    DIFFERENCE_TEST = ("difference-test", "the chi-square difference test against the step before (p >= alpha)")
+    FIT_CHANGE = ("fit-change", "the change in fit against the step before: CFI falls by no more than .010 (Cheung & "
+                                "Rensvold 2002), RMSEA rises by less than .015 and SRMR by less than .030 at the "
+                                "loadings step and .010 after it (Chen 2007)")
+    BOTH = ("both", "both the chi-square difference test (p >= alpha) and the change-in-fit guides (Cheung & Rensvold "
+                    "2002; Chen 2007)")
+
+    @classmethod
+    def parse(cls, value) -> "DecisionRule":
+        if isinstance(value, cls):
+            return value
+        for member in cls:
+            if member.value == value:
+                return member
+        raise OptionError(f"the decision rule must be one of {', '.join(m.value for m in cls)}, not '{value}'")
+
+
+#: why the partial-invariance search stopped at a step
+STOP_HOLDS = "the step holds"
+STOP_OFF = "no search was asked for"
+STOP_NOTHING_LEFT = ("no equality left that may be freed (one loading and one intercept per factor stay equal, so "
+                     "that factor scales and means remain comparable)")
+STOP_CAP = "the search reached its limit of {cap} freed parameters at this step"
 #: The configural model is judged on its own fit, by the report's guide values (Hu & Bentler 1999; common
 #: practice, not laws): CFI at least .95, RMSEA at most .06, SRMR at most .08
 CONFIGURAL_GUIDES = {"cfi": 0.95, "rmsea": 0.06, "srmr": 0.08}
 PARTIAL_CHOICES = ("none", "auto")
 MAX_FREED_PER_STEP = 10
 SEARCH_WARNING = (
-    "the partial-invariance search chose parameters from these data; such a data-driven search capitalises on chance, "
-    "so the freed parameters need confirmation in an independent sample"
+    "the partial-invariance search chose parameters from these data; such a data-driven search capitalises on chance "
+    "(MacCallum, Roznowski & Necowitz 1992), so the freed parameters need confirmation in an independent sample"
 )
+#: freeing more than half of a step's equalities leaves a step that is hardly invariant (common practice asks that
+#: most indicators stay invariant; Vandenberg & Lance 2000)
+MANY_FREED_SHARE = 0.5
 
 
 @dataclass(frozen=True)
@@ -77,16 +119,30 @@ class InvarianceStep:
     culprits: tuple[ModificationIndex, ...]  # score tests of this step's constraints, largest first
     # tested after a step that did not hold: the comparison is between models already rejected
     conditional: bool = False
+    # the step with every equality of its class (before the partial search freed any): always reported
+    full_result: FitResult | None = None
+    full_test: DifferenceTest | None = None
+    full_holds: bool | None = None
+    freed: tuple = ()  # FreedParameter freed at this step (a partially invariant step)
+    stopped: str = ""  # why the partial search stopped here
+    delta_srmr: float | None = None
+
+    @property
+    def partial(self) -> bool:
+        return bool(self.freed)
 
     def to_dict(self) -> dict:
-        vs = None
-        if self.versus_previous is not None:
-            t = self.versus_previous
-            vs = clean({"chi_square_difference": t.chi_square_difference, "df_difference": t.df_difference,
-                        "p_value": t.p_value, "method": t.method, "delta_cfi": t.delta_cfi, "delta_rmsea": t.delta_rmsea})
+        vs = _test_dict(self.versus_previous, self.delta_srmr)
+        full = None
+        if self.partial and self.full_result is not None:
+            full = {"fit": clean(self.full_result.fit.to_dict()) if self.full_result.fit is not None else None,
+                    "robust": clean(self.full_result.robust.to_dict()) if self.full_result.robust is not None else None,
+                    "versus_previous": _test_dict(self.full_test, None), "holds": self.full_holds}
         return {
             "level": self.level,
             "converged": self.result.converged,
+            "admissible": self.result.admissible,
+            "problems": [p.to_dict() for p in self.result.problems],
             "fit": clean(self.result.fit.to_dict()) if self.result.fit is not None else None,
             "robust": clean(self.result.robust.to_dict()) if self.result.robust is not None else None,
             "versus_previous": vs,
@@ -94,8 +150,46 @@ class InvarianceStep:
             "judged_by": "its own fit (CFI, RMSEA and SRMR guide values)" if self.versus_previous is None
             else "the difference test against the step before",
             "conditional_on_a_rejected_step": self.conditional,
+            "partial": self.partial,
+            "freed": [f.to_dict() for f in self.freed],
+            "with_every_equality": full,
+            "search_stopped": self.stopped or None,
             "constraint_tests": [clean(c.to_dict()) for c in self.culprits[:10]],
         }
+
+
+def _test_dict(t: DifferenceTest | None, delta_srmr: float | None) -> dict | None:
+    if t is None:
+        return None
+    return clean({"chi_square_difference": t.chi_square_difference, "df_difference": t.df_difference,
+                  "p_value": t.p_value, "method": t.method, "delta_cfi": t.delta_cfi, "delta_rmsea": t.delta_rmsea,
+                  "delta_srmr": delta_srmr})
+
+
+@dataclass(frozen=True)
+class LatentDifference:
+    """One factor's mean and variance in one group against the reference group, from the scalar model."""
+
+    factor: str
+    group: str
+    mean: float  # the reference group's mean is 0
+    se: float
+    ci95: tuple[float, float]
+    p_value: float
+    standardized: float  # mean over the pooled latent standard deviation of the two groups (Cohen's d metric)
+    variance: float
+    variance_se: float
+    reference_variance: float
+
+    @property
+    def variance_ratio(self) -> float:
+        return self.variance / self.reference_variance if self.reference_variance > 0 else float("nan")
+
+    def to_dict(self) -> dict:
+        return clean({"factor": self.factor, "group": self.group, "mean_difference": self.mean, "se": self.se,
+                      "ci95": list(self.ci95), "p_value": self.p_value, "standardized_mean_difference": self.standardized,
+                      "variance": self.variance, "variance_se": self.variance_se,
+                      "reference_variance": self.reference_variance, "variance_ratio": self.variance_ratio})
 
 
 @dataclass(frozen=True, eq=False)
@@ -106,24 +200,31 @@ class InvarianceResult:
     freed: tuple[FreedParameter, ...]
     alpha: float
     warnings: tuple[str, ...]
+    rule: DecisionRule = DecisionRule.DIFFERENCE_TEST
+    latent_differences: tuple[LatentDifference, ...] = ()
+    latent_note: str = ""  # which model the latent differences come from, or why there are none
 
     def to_dict(self) -> dict:
         return {
+            "warnings": list(self.warnings),
             "group_column": self.group_column,
             "groups": list(self.groups),
             "alpha": self.alpha,
+            "decision_rule": {"name": self.rule.value, "description": self.rule.description},
             "steps": [s.to_dict() for s in self.steps],
             "freed": [f.to_dict() for f in self.freed],
-            "warnings": list(self.warnings),
+            "latent_differences": [d.to_dict() for d in self.latent_differences],
+            "latent_differences_note": self.latent_note,
         }
 
 
 def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
-               reference_group: str | None = None, partial: str = "none", alpha: float = 0.05,
+               reference_group: str | None = None, partial: str = "none", alpha: float | None = None,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None,
-               **options) -> InvarianceResult:
+               decide_by: str | DecisionRule = DecisionRule.DIFFERENCE_TEST, **options) -> InvarianceResult:
     """Fit the invariance ladder; with ``partial='auto'`` free the likeliest culprits until each step holds.
+    ``decide_by`` names how each step is judged (:class:`DecisionRule`).
 
     With ordinal items (an 'ordinal' statement or ``ordinal``) the ladder is configural, thresholds,
     metric, scalar, strict, fitted by least squares on thresholds and polychoric correlations."""
@@ -132,7 +233,11 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                           f"{type(group).__name__}")
     if partial not in PARTIAL_CHOICES:
         raise OptionError(f"partial must be one of {', '.join(PARTIAL_CHOICES)}, not '{partial}'")
-    alpha = check.probability("alpha (the level of the difference tests)", alpha)
+    rule = DecisionRule.parse(decide_by)
+    if alpha is not None and rule is DecisionRule.FIT_CHANGE:
+        raise OptionError("alpha is the level of the difference tests, which the fit-change rule does not use; give "
+                          "alpha only with --decide-by difference-test or both")
+    alpha = check.probability("alpha (the level of the difference tests)", 0.05 if alpha is None else alpha)
     fit_options = replace(make_options(options), diagnostics=False)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     if spec.invariant:
@@ -141,6 +246,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if ordinal_items:
         check_ordinal_options(fit_options)
+        if rule is not DecisionRule.DIFFERENCE_TEST:
+            raise OptionError("with ordinal items the fit indices of each step come from its own adjusted statistic and "
+                              "cannot be compared across steps; judge the steps by the difference tests "
+                              "(--decide-by difference-test)")
         groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items)
         ladder = OrdinalLadder(ordinal_estimator)
     else:
@@ -154,6 +263,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     previous = None  # (estimation, result) of the step below
     start = None
     for level, classes, kinds in ladder.levels:
+        full = None  # (result, test, holds) with every equality of the step
+        stopped = ""
+        freed_here: list[FreedParameter] = []
         while True:
             # exemptions apply from the level that holds their class equal
             level_spec = replace(spec, invariant=classes, noninvariant=tuple(r for r in exceptions
@@ -161,22 +273,41 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             est = ladder.estimate(level_spec, groups, fit_options, start)
             result = ladder.assess(level_spec, groups, est, fit_options, group)
             if not result.converged:
+                why = result.problems[0] if result.problems else None
+                reason = (f" ({result.message}). {why.advice}" if why is not None else f" ({result.message})")
+                if not steps:  # nothing to report without a configural model
+                    raise EstimationError(f"the configural model did not converge{reason}")
                 steps.append(InvarianceStep(level, result, None, False, ()))
-                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
-                                        tuple(notes) + (f"the {level} model did not converge; the ladder stops there",))
+                stopped = (f"the {level} model did not converge{reason}; the ladder stops there"
+                           + (", and the partial search could not run at this step" if partial != "none" else ""))
+                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, (stopped,) + tuple(notes),
+                                        rule)
             test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
-            holds = configural_fits(result) if test is None else not (test.p_value < alpha)
+            holds = configural_fits(result) if test is None else _step_holds(rule, test, alpha, result, previous[1], level)
+            if full is None:
+                full = (result, test, holds)
             culprits = tuple(ladder.constraint_tests(est, kinds)) if kinds else ()
             culprits = _one_per_constraint(tuple(c for c in culprits if _may_free(c, exceptions, level_spec, kinds)),
                                            labels)
-            if holds or partial == "none" or not culprits or sum(f.level == level for f in freed) >= MAX_FREED_PER_STEP:
+            if holds:
+                stopped = STOP_HOLDS
+            elif partial == "none":
+                stopped = STOP_OFF
+            elif not culprits:
+                stopped = STOP_NOTHING_LEFT
+            elif len(freed_here) >= MAX_FREED_PER_STEP:
+                stopped = STOP_CAP.format(cap=MAX_FREED_PER_STEP)
+            if stopped:
                 break
             top = culprits[0]
             exceptions.append(ParameterRef(_ref_kind(top.kind), _ref_names(top), spec.factors[0].name.location))
-            freed.append(FreedParameter(level, top.kind, _ref_names(top), top.group, top.index))
+            freed_here.append(FreedParameter(level, top.kind, _ref_names(top), top.group, top.index))
             start = None
+        freed.extend(freed_here)
         conditional = any(not s.holds for s in steps)
-        steps.append(InvarianceStep(level, result, test, holds, culprits, conditional))
+        srmr_change = (result.fit.srmr - previous[1].fit.srmr) if previous is not None else None
+        steps.append(InvarianceStep(level, result, test, holds, culprits, conditional, full[0], full[1], full[2],
+                                    tuple(freed_here), stopped if partial != "none" and kinds else "", srmr_change))
         previous = (est, result)
         start = est.theta
     warnings = list(notes)
@@ -192,7 +323,90 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                            f"it; they are marked as conditional on a rejected step")
     if freed:
         warnings.append(SEARCH_WARNING)
-    return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, tuple(warnings))
+    for step in steps:
+        if step.freed and step.versus_previous is not None and step.full_test is not None \
+                and len(step.freed) > MANY_FREED_SHARE * max(step.full_test.df_difference, 1):
+            warnings.append(f"the search freed {len(step.freed)} of the {step.full_test.df_difference} equalities of the "
+                            f"{step.level} step: with so many exceptions the step is hardly invariant, and the freed "
+                            f"set is likely to fit these data by chance")
+        if step.level != "configural" and not step.holds and (
+                step.stopped in (STOP_NOTHING_LEFT, STOP_CAP.format(cap=MAX_FREED_PER_STEP))):
+            warnings.append(f"the search at the {step.level} step stopped without the step holding: {step.stopped}")
+    inadmissible = [s for s in steps if s.result.converged and not s.result.admissible]
+    for step in reversed(inadmissible):  # problems first: an impossible solution outranks every other note
+        warnings.insert(0, f"the {step.level} model's solution is not admissible ("
+                           + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
+                           + "): its fit and its difference test cannot show that invariance holds")
+    differences, latent_note = latent_differences(steps)
+    return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, tuple(warnings), rule, differences,
+                            latent_note)
+
+
+def _step_holds(rule: DecisionRule, test: DifferenceTest, alpha: float, result: FitResult, general: FitResult,
+                level: str) -> bool:
+    """Whether a step holds against the step before by ``rule``."""
+    by_test = not (test.p_value < alpha)
+    if rule is DecisionRule.DIFFERENCE_TEST:
+        return by_test
+    restricted, before = _fit_values(result), _fit_values(general)
+    by_change = (restricted["cfi"] - before["cfi"] >= CFI_GUIDE and restricted["rmsea"] - before["rmsea"] < RMSEA_GUIDE
+                 and restricted["srmr"] - before["srmr"] < SRMR_GUIDE.get(level, SRMR_GUIDE_LATER))
+    return by_change if rule is DecisionRule.FIT_CHANGE else (by_change and by_test)
+
+
+def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str]:
+    """Factor means and variances of each group against the reference group, from the scalar model (partial
+    when the search freed some of its equalities), with a note saying which model they come from or why
+    there are none: latent means are comparable only when loadings and intercepts (thresholds) are equal."""
+    scalar = next((s for s in steps if s.level == "scalar"), None)
+    if scalar is None:
+        return (), "No latent mean differences: the ladder did not reach the scalar step."
+    if any(not s.holds for s in steps if s.level in ("thresholds", "metric", "scalar")):
+        return (), ("No latent mean differences: the scalar step (or a step before it) did not hold, so the factor "
+                    "means of the groups are not on a common scale.")
+    if not scalar.result.admissible:
+        return (), "No latent mean differences: the scalar model's solution is not admissible."
+    result = scalar.result
+    labels = [g.label for g in result.groups]
+    size = {g.label: g.data.n_obs for g in result.groups}
+    rows = {(r.kind, r.variables, r.group): r for r in result.estimates if r.kind in ("mean", "factor_variance")}
+    reference = labels[0]
+    # a factor's means are comparable when at least two of its items keep equal loadings and intercepts
+    # (Byrne, Shavelson & Muthen 1989); with fewer, its scalar equality is not tested at all
+    freed = [f for s in steps if s.level in ("thresholds", "metric", "scalar") for f in s.freed]
+    items_of: dict[str, set[str]] = {}
+    for r in result.estimates:
+        if r.kind == "loading" and r.group == reference and r.variables[1] in result.observed:
+            items_of.setdefault(r.variables[0], set()).add(r.variables[1])
+    too_few = []
+    for factor, items in items_of.items():
+        loose = {f.variables[-1] for f in freed if f.kind in ("intercept", "threshold") and f.variables[-1] in items}
+        loose |= {f.variables[1] for f in freed if f.kind == "loading" and f.variables[0] == factor}
+        if len(items - loose) < 2:
+            too_few.append(factor)
+    out = []
+    for factor in result.latent:
+        if factor in too_few:
+            continue
+        ref_var = rows.get(("factor_variance", (factor,), reference))
+        for label in labels[1:]:
+            mean = rows.get(("mean", (factor,), label))
+            var = rows.get(("factor_variance", (factor,), label))
+            if mean is None or var is None or ref_var is None:
+                continue
+            pooled = (size[reference] * ref_var.estimate + size[label] * var.estimate) / (size[reference] + size[label])
+            d = mean.estimate / np.sqrt(pooled) if pooled > 0 else float("nan")
+            out.append(LatentDifference(factor, label, mean.estimate, mean.se, mean.ci95, mean.p_value, float(d),
+                                        var.estimate, var.se, ref_var.estimate))
+    withheld = (f" None for {', '.join(too_few)}: fewer than two of its items keep equal loadings and intercepts "
+                f"across groups, so the equality that makes its means comparable is not tested (Byrne, Shavelson & "
+                f"Muthen 1989)." if too_few else "")
+    which = "the partially invariant scalar model" if any(s.partial for s in steps if s.level != "strict") else \
+        "the scalar model"
+    return tuple(out), (f"From {which}: each group's factor means against the reference group {reference} (whose means "
+                        f"are fixed at 0); standardized by the pooled latent standard deviation of the two groups."
+                        + ("" if steps[0].holds else " The configural model misfits, so read them with caution.")
+                        + withheld)
 
 
 def _decimal(value: float) -> str:

@@ -32,8 +32,13 @@ class ParameterPower:
     coverage: float
     power: float
 
+    @property
+    def se_bias(self) -> float:
+        """Relative bias of the standard errors: (mean SE - SD of the estimates) / SD of the estimates."""
+        return (self.mean_se - self.sd_estimate) / self.sd_estimate if self.sd_estimate > 0 else float("nan")
+
     def to_dict(self) -> dict:
-        return dict(self.__dict__)
+        return {**self.__dict__, "se_relative_bias": self.se_bias}
 
 
 @dataclass(frozen=True)
@@ -60,7 +65,8 @@ def _replicate(task) -> tuple[bool, np.ndarray, np.ndarray]:
 
 
 def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int = 1, alpha: float = 0.05,
-                      workers: int | None = None, cluster: str | None = None, progress=None) -> MonteCarloPower:
+                      workers: int | None = None, cluster: str | None = None, progress=None,
+                      population=None) -> MonteCarloPower:
     from cfa_tool.pipeline.inputs import continuous_only, load_spec
 
     spec = continuous_only(load_spec(spec), "power-simulation")
@@ -75,7 +81,7 @@ def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int
     if n_obs * p > check.MAX_SIMULATED_CELLS:
         raise OptionError(f"{n_obs:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values per "
                           f"simulated data set; plan with a smaller sample size")
-    population = population_from_spec(spec)
+    population = population_from_spec(spec, population)
     table = population.table
     seeds = np.random.SeedSequence(seed).generate_state(replications)
     tasks = [(spec, population.sigma, population.observed, n_obs, int(s), population.theta) for s in seeds]

@@ -30,9 +30,12 @@ class DifferenceTest:
     method: DifferenceMethod
     delta_cfi: float
     delta_rmsea: float
+    not_computed: str = ""  # why the statistic could not be computed ('' when it was)
 
     def to_dict(self) -> dict:
-        return clean(dict(self.__dict__))
+        out = clean(dict(self.__dict__))
+        out["not_computed"] = self.not_computed or None
+        return out
 
 
 def difference_test(restricted: FitResult, general: FitResult, restricted_name: str, general_name: str) -> DifferenceTest:
@@ -61,11 +64,20 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
     for method, c1 in ((DifferenceMethod.SATORRA_BENTLER_2001, gr.scaling_factor),
                        (DifferenceMethod.SATORRA_BENTLER_2010, general_scaling_at_restricted)):
         if c1 is None:
+            if method is DifferenceMethod.SATORRA_BENTLER_2010:
+                out.append(DifferenceTest(restricted_name, general_name, float("nan"), ddf, float("nan"), method,
+                                          delta_cfi, delta_rmsea, "the general model has no degrees of freedom, so its "
+                                          "scaling factor at the restricted model's estimates is not defined"))
             continue
         cd = (r.df * rr.scaling_factor - g.df * c1) / ddf
-        diff = (r.chi_square - g.chi_square) / cd if cd > 0 else float("nan")
-        p = float(dist.chi2_sf(max(diff, 0.0), ddf)) if cd > 0 else float("nan")
-        out.append(DifferenceTest(restricted_name, general_name, diff, ddf, p, method, delta_cfi, delta_rmsea))
+        if cd > 0:
+            diff = (r.chi_square - g.chi_square) / cd
+            out.append(DifferenceTest(restricted_name, general_name, diff, ddf, float(dist.chi2_sf(max(diff, 0.0), ddf)),
+                                      method, delta_cfi, delta_rmsea))
+        else:
+            out.append(DifferenceTest(restricted_name, general_name, float("nan"), ddf, float("nan"), method, delta_cfi,
+                                      delta_rmsea, f"its scaling correction is not positive ({cd:.3f}), which can happen "
+                                      f"with this version in small samples; read the strictly positive version"))
     return out
 
 

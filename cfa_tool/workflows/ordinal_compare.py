@@ -12,10 +12,12 @@ Asparouhov & Muthen 2006).
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import numpy as np
 
 from cfa_tool.data.polychoric import ordinal_moments
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import OptionError, estimation_of
 from cfa_tool.estimation.optimizer import minimise
 from cfa_tool.method import DifferenceMethod
 from cfa_tool.pipeline.ordinal import assess_ordinal_groups, estimate_ordinal_groups, ordinal_difference
@@ -38,9 +40,15 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
             groups = [("all", ordinal_moments(complete, spec.observed_names, source, frozenset(items - ordinal_items)))]
         else:
             groups, _ = ordinal_groups(spec, complete, source, group, reference_group, ordinal_items)
-        est = estimate_ordinal_groups(spec, groups, fit_options, method)
+        with estimation_of(f"model {spec.title or spec.source}"):
+            est = estimate_ordinal_groups(spec, groups, fit_options, method)
+            result = assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False)
         estimations.append(est)
-        results.append(assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False))
+        if group is None and result.fit is not None:
+            # 'fit' of one group estimates the thresholds in a first step and does not count them: count alike
+            thresholds = len({par.terms[0][0] for par in est.table.parameters if par.kind == "threshold" and par.free})
+            result = replace(result, fit=replace(result.fit, n_free_parameters=result.fit.n_free_parameters - thresholds))
+        results.append(result)
         data_groups.append(groups)
     return estimations, results, data_groups
 

@@ -23,7 +23,7 @@ from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool import options as check
-from cfa_tool.errors import DataError, EstimationError, OptionError
+from cfa_tool.errors import DataError, EstimationError, OptionError, estimation_of
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.pipeline.continuous import fit_moments
 from cfa_tool.language.spec import Spec
@@ -47,9 +47,12 @@ class Replication:
         loose = self.loose.fit.to_dict() if self.loose.fit is not None else None
         return clean({
             "calibration": {"data": self.calibration, "n_obs": self.calibration_result.n_obs,
+                            "admissible": self.calibration_result.admissible,
+                            "problems": [p.to_dict() for p in self.calibration_result.problems],
                             "fit": self.calibration_result.fit.to_dict()},
             "validation": {"data": self.validation, "n_obs": self.loose.n_obs},
-            "loose": {"fit": loose},
+            "loose": {"fit": loose, "admissible": self.loose.admissible,
+                      "problems": [p.to_dict() for p in self.loose.problems]},
             "tight": {"chi_square": self.tight_chi_square, "df": self.tight_df, "p_value": self.tight_p_value,
                       "rmsea": self.tight_rmsea},
             "cross_validation_index": self.cvi,
@@ -69,10 +72,12 @@ def _moments(spec: Spec, frame: pd.DataFrame, source: str) -> SampleMoments:
 
 def replicate_moments(spec: Spec, calibration: SampleMoments, validation: SampleMoments, **options) -> Replication:
     fit_options = replace(make_options(options), diagnostics=False)
-    cal = fit_moments(spec, calibration, fit_options)
+    with estimation_of(f"calibration sample {calibration.source}"):
+        cal = fit_moments(spec, calibration, fit_options)
     if not cal.converged:
-        raise EstimationError(f"the model did not converge in the calibration sample ({cal.message})")
-    loose = fit_moments(spec, validation, fit_options)
+        raise EstimationError(f"the model did not converge in the calibration sample {calibration.source} ({cal.message})")
+    with estimation_of(f"validation sample {validation.source}"):
+        loose = fit_moments(spec, validation, fit_options)
     order = [validation.names.index(n) for n in cal.observed]
     S_val = validation.covariance[np.ix_(order, order)]
     sigma_cal = cal.implied_covariance

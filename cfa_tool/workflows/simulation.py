@@ -41,6 +41,7 @@ class Population:
     theta: np.ndarray
     sigma: np.ndarray
     defaulted: tuple[str, ...]  # labels of the parameters that took default values
+    fitted_from: str | None = None  # the earlier fit the values come from (None: the model file and defaults)
 
     @property
     def observed(self) -> tuple[str, ...]:
@@ -145,10 +146,106 @@ def standardized_entries(table: ParameterTable, model: StructuredModel, theta: n
     return standardize_entries(model.matrices(theta), codes, rows, cols, model.entry_values(theta))[0]
 
 
-def population_from_spec(spec: Spec) -> Population:
+MAX_RESULT_BYTES = 200_000_000
+_COVARIANCE_KINDS = ("factor_covariance", "residual_covariance")
+
+
+def fitted_estimates(fitted) -> tuple[list[dict], str, bool, bool, bool]:
+    """The estimate rows of an earlier fit and where they came from: ``fitted`` is a fit result, the dict of
+    its JSON (``fit --json``) or the path of that JSON file."""
+    import json
+    from pathlib import Path
+
+    from cfa_tool.input_files import input_bytes
+
+    if hasattr(fitted, "to_dict") and hasattr(fitted, "estimates"):
+        return (fitted.to_dict()["estimates"], "the fit result given", bool(fitted.admissible), fitted.multigroup,
+                bool(fitted.method.ordinal))
+    source = "the result given"
+    if isinstance(fitted, (str, Path)):
+        source = str(fitted)
+        raw = input_bytes(fitted, "fitted result", OptionError, MAX_RESULT_BYTES)
+        try:
+            fitted = json.loads(raw.decode("utf-8-sig"))
+        except (UnicodeDecodeError, ValueError) as exc:
+            raise OptionError(f"{source}: not a result written by 'cfa-tool fit --json' (it is not JSON: "
+                              f"{str(exc).splitlines()[0][:80]})") from None
+    if not isinstance(fitted, dict) or not isinstance(fitted.get("estimates"), list):
+        raise OptionError(f"{source}: not a result written by 'cfa-tool fit --json' (it has no 'estimates' list)")
+    return (fitted["estimates"], source, fitted.get("admissible", True) is not False, "groups" in fitted,
+            bool(fitted.get("ordinal_items")))
+
+
+def _population_from_fit(spec: Spec, fitted) -> Population:
+    """Population values taken from an earlier fit of the same model: every free parameter's estimate, so
+    reverse-keyed loadings, negative correlations and the observed residual variances carry over."""
+    rows, source, admissible, grouped, ordinal = fitted_estimates(fitted)
+    if ordinal or any(isinstance(row, dict) and row.get("kind") == "threshold" for row in rows):
+        raise OptionError(f"{source}: the fit is of ordinal items, whose thresholds a population of continuous "
+                          f"answers cannot carry; fit the items as continuous to plan from them")
+    if grouped:
+        raise OptionError(f"{source}: the fit has groups; population values are taken from a fit of one group")
+    if not admissible:
+        problems = fitted.get("problems", []) if isinstance(fitted, dict) else getattr(fitted, "problems", ())
+        first = problems[0] if problems else None
+        what = (first.get("kind") if isinstance(first, dict) else first.kind.value) if first is not None else ""
+        raise OptionError(f"{source}: the fitted solution is not admissible ({what or 'see its problems'}), so it "
+                          f"cannot serve as a population")
+    if spec.starts:
+        raise OptionError("give population values either by 'start' statements or from a fitted result, not both")
+
+    def key(kind: str, variables) -> tuple:
+        names = tuple(str(v) for v in variables)
+        return kind, tuple(sorted(names)) if kind in _COVARIANCE_KINDS else names
+
+    value_of = {}
+    for row in rows:
+        try:
+            value_of[key(row["kind"], row["variables"])] = (float(row["estimate"]), bool(row.get("free", True)))
+        except (KeyError, TypeError, ValueError):
+            raise OptionError(f"{source}: an estimate row lacks its kind, variables or value") from None
+    table = build_parameter_table(spec)
+    known = {key(par.kind, par.variables) for par in table.parameters}
+    extra = [f"{kind}({', '.join(names)})" for (kind, names), (_, free) in value_of.items() if free and
+             (kind, names) not in known]
+    if extra:
+        raise OptionError(f"{source} estimates {', '.join(extra[:3])}, which this model does not have: it is the "
+                          f"result of a different model")
+    theta = np.full(table.n_free, np.nan)
+    for par in table.parameters:
+        found = value_of.get(key(par.kind, par.variables))
+        label = par.label
+        if found is None:
+            if par.free:
+                raise OptionError(f"{source} has no estimate of {label}: it is the result of a different model")
+            continue
+        value, _ = found
+        if not par.free:
+            if abs(value - par.offset) > 1e-9 * max(1.0, abs(value)):
+                raise OptionError(f"{source} has {label} = {value:g} where the model file fixes it at {par.offset:g}: "
+                                  f"the two models differ (for example in how factors get their scale)")
+            continue
+        k, coefficient = par.terms[0]
+        if len(par.terms) == 1 and np.isnan(theta[k]):
+            theta[k] = value / coefficient
+    missing = [table.free_labels[k] for k in range(table.n_free) if np.isnan(theta[k])]
+    if missing:
+        raise OptionError(f"{source} gives no value for {', '.join(missing[:5])}")
+    model = StructuredModel(table)
+    sigma = model.implied(theta)
+    if np.linalg.eigvalsh(sigma)[0] <= 0:
+        raise OptionError(f"{source}: its estimates imply a covariance matrix that is not positive definite")
+    return Population(spec, table, theta, sigma, (), source)
+
+
+def population_from_spec(spec: Spec, fitted=None) -> Population:
+    """The population of ``spec``: its 'start' and 'fix' values with standardized defaults beside them, or,
+    with ``fitted`` (a fit result, its JSON dict or the JSON file), the estimates of that earlier fit."""
     from cfa_tool.data.moments import SampleMoments
     from cfa_tool.pipeline.continuous import FitOptions, estimate
 
+    if fitted is not None:
+        return _population_from_fit(spec, fitted)
     table = build_parameter_table(spec)
     model = StructuredModel(table)
     given = table.start.copy()
@@ -202,11 +299,14 @@ class SimulatedData:
                 "categories": self.categories, "missing_share": self.missing, "population": self.population.values()}
 
 
-def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing: float = 0.0) -> SimulatedData:
+def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing: float = 0.0,
+             population=None) -> SimulatedData:
     """Data from the model's population values (``spec``: a model file, model text or parsed model):
     continuous, or ordinal with ``categories`` categories (whole numbers 1..k), with a share ``missing``
     of answers removed completely at random.  Items an 'ordinal' statement declares are cut into
-    categories (and need ``categories``); without such a statement ``categories`` cuts every item."""
+    categories (and need ``categories``); without such a statement ``categories`` cuts every item.
+    ``population``: an earlier fit of the same model (result, JSON dict or JSON file) whose estimates are
+    the population values."""
     from cfa_tool.pipeline.inputs import load_spec
 
     spec = load_spec(spec)
@@ -223,7 +323,7 @@ def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing
     if declared and categories is None:
         raise OptionError(f"the model declares ordinal items ({', '.join(declared[:5])}); give the number of "
                           f"categories to cut them into (--categories)")
-    population = population_from_spec(spec)
+    population = population_from_spec(spec, population)
     rng = np.random.default_rng(seed)
     rows = simulate_rows(population.sigma, n, rng)
     if categories is not None:

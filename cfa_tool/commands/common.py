@@ -1,0 +1,47 @@
+"""What the commands of this package share: checking their output files first, and writing them."""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+from cfa_tool.errors import OptionError, printable
+
+
+def check_files(args: argparse.Namespace, outputs: list[tuple[str, str | None]], inputs: list[str | None]) -> dict:
+    """Every output checked before any work (cfa_tool.output_files); the targets are kept on ``args``."""
+    from cfa_tool.output_files import check_outputs
+
+    targets = check_outputs(outputs, [i for i in inputs if i])
+    args._targets = targets
+    args._stdout_taken = any(t.is_stdout for t in targets.values())
+    return targets
+
+
+def require_suffix(option: str, given: str | None, suffix: str, what: str) -> None:
+    if given and given != "-" and Path(given).suffix.lower() != suffix:
+        raise OptionError(f"{option}: {what} are written as {suffix[1:].upper()}; give a file name ending in {suffix}, "
+                          f"not '{printable(given)}'")
+
+
+def say(args: argparse.Namespace, text: str) -> None:
+    """A line about files written: on standard output, or standard error when standard output carries an output."""
+    import sys
+
+    print(printable(text), file=sys.stderr if getattr(args, "_stdout_taken", False) else sys.stdout)
+
+
+def write_reports(args: argparse.Namespace, files: list[tuple[str, object, str]]) -> None:
+    """Write (option, content, message) outputs through the output guard, each with its message."""
+    from cfa_tool.output_files import write_file
+
+    for option, content, message in files:
+        write_file(args._targets[option], content)
+        if not args._targets[option].is_stdout:
+            say(args, message)
+
+
+def add_report_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--json", metavar="PATH", help="also write the result as JSON to PATH ('-' for standard output only)")
+    p.add_argument("--html", metavar="PATH", help="write a self-contained HTML report")
+    p.add_argument("--markdown", metavar="PATH", help="write the report as Markdown")

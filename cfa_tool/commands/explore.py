@@ -1,0 +1,70 @@
+"""``cfa-tool explore``: how many factors, an exploratory solution and a draft model file
+(cfa_tool.workflows.explore); with --split, explore one random half and fit the draft on the other."""
+
+from __future__ import annotations
+
+import argparse
+
+from cfa_tool.commands.common import add_report_options, check_files, require_suffix, say, write_reports
+
+
+def add_parser(sub) -> None:
+    from cfa_tool import cli
+
+    p = sub.add_parser("explore", help="how many factors, an exploratory solution, and a draft model file")
+    p.add_argument("--data", required=True, metavar="FILE", help="data file (rows of answers)")
+    p.add_argument("--items", metavar="NAMES",
+                   help="comma-separated columns to explore; a..b is every column from a to b in the file "
+                        "(default: every column that holds numbers)")
+    p.add_argument("--factors", metavar="K", default="auto",
+                   help="number of factors, or 'auto' for the recommended number (default auto)")
+    p.add_argument("--rotation", default="quartimin",
+                   choices=("quartimin", "oblimin", "geomin", "promax", "varimax", "none"),
+                   help="quartimin (default), oblimin, geomin, promax: correlated factors; varimax: uncorrelated; none")
+    p.add_argument("--extraction", default="maximum-likelihood", choices=("maximum-likelihood", "least-squares"),
+                   help="how the factors are estimated (default maximum-likelihood)")
+    p.add_argument("--ordinal", metavar="ITEMS",
+                   help="'all' or comma-separated items to analyse by polychoric correlations")
+    p.add_argument("--draft", metavar="PATH",
+                   help="write the draft model file here (.cfa); an existing file is never replaced")
+    p.add_argument("--split", metavar="SEED", type=int,
+                   help="explore one random half of the rows (seed SEED) and fit the draft model on the other half")
+    p.add_argument("--replications", type=int, default=100, help="random data sets of parallel analysis (default 100)")
+    p.add_argument("--seed", type=int, default=0, help="seed of parallel analysis and of the rotation's random starts "
+                                                       "(default 0)")
+    cli._add_data_options(p)
+    add_report_options(p)
+
+
+def run(args: argparse.Namespace) -> int:
+    from cfa_tool import cli
+    from cfa_tool.language.parser import MODEL_SUFFIX
+    from cfa_tool.output_files import check_new_file
+    from cfa_tool.reporting.explore_report import explore_html_report, explore_markdown, render_explore
+    from cfa_tool.reporting.json_report import to_json
+    from cfa_tool.workflows.explore import explore
+
+    require_suffix("--draft", args.draft, MODEL_SUFFIX, "model files")
+    outputs = [("--draft", args.draft), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown)]
+    targets = check_files(args, outputs, [args.data])
+    if args.draft:
+        targets["--draft"] = check_new_file(targets["--draft"])
+    result = explore(args.data, items=args.items, factors=args.factors, rotation=args.rotation,
+                     extraction=args.extraction, ordinal=cli._ordinal_arg(args.ordinal), split=args.split,
+                     sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
+                     replications=args.replications, seed=args.seed)
+    files = []
+    if args.draft:
+        files.append(("--draft", result.draft_text, f"Draft model written to {args.draft}"))
+    if args.json:
+        files.append(("--json", to_json(result), f"JSON result written to {args.json}"))
+    if args.html:
+        files.append(("--html", explore_html_report(result), f"HTML report written to {args.html}"))
+    if args.markdown:
+        files.append(("--markdown", explore_markdown(result), f"Markdown report written to {args.markdown}"))
+    if not args._stdout_taken:
+        render_explore(result, cli._console())
+    write_reports(args, files)
+    if args.draft and not result.exploration.draft.usable:
+        say(args, "The draft model declares no factor (too few items per factor); it holds comments only")
+    return 0

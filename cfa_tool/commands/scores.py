@@ -1,0 +1,94 @@
+"""``cfa-tool scores``: fit a model and write a factor score per row and factor, with a report of how good
+the scores are (cfa_tool.workflows.factor_scores)."""
+
+from __future__ import annotations
+
+import argparse
+
+from cfa_tool.commands.common import add_report_options, check_files, require_suffix, say, write_reports
+
+
+def add_parser(sub) -> None:
+    from cfa_tool import cli
+
+    p = sub.add_parser("scores", help="fit a model and write factor scores of every row, with their quality")
+    p.add_argument("model", metavar="MODEL", help="model file")
+    p.add_argument("--data", required=True, metavar="FILE", help="data file (rows of answers)")
+    p.add_argument("--output", required=True, metavar="PATH", help="CSV file to write the scores to ('-' for standard output)")
+    p.add_argument("--method", metavar="LIST",
+                   help="comma-separated: regression (default), bartlett, correlation-preserving; ordinal items are "
+                        "always scored by their posterior mean with its standard deviation")
+    p.add_argument("--standard-errors", action="store_true",
+                   help="also write each score's standard error (for regression scores the posterior standard deviation)")
+    p.add_argument("--id", metavar="COLUMN", help="column written first to name each row (never analysed); default: "
+                                                  "the file's row names, when its first header cell is empty")
+    cli._add_data_options(p)
+    cli._add_group_options(p, required=False)
+    cli._add_ordinal_options(p)
+    p.add_argument("--missing", choices=("listwise", "full-information"), default=None,
+                   help="rows with gaps in the fit: full-information ML (the default when a model variable has gaps) or "
+                        "left out of the fit (listwise); every row is scored from the items it answered either way")
+    p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
+    p.add_argument("--from-fit", metavar="RESULT.json",
+                   help="score the data with the parameters of an earlier fit of MODEL (its 'fit --json' result) instead "
+                        "of fitting the model to them; continuous items")
+    add_report_options(p)
+
+
+#: options about fitting, which cannot apply when the parameters come from an earlier fit
+FITTING_OPTIONS = (("group", "--group"), ("reference_group", "--reference-group"), ("ordinal", "--ordinal"),
+                   ("ordinal_estimator", "--ordinal-estimator"), ("missing", "--missing"),
+                   ("max_iterations", "--max-iterations"))
+
+
+def _methods(text: str | None):
+    from cfa_tool.errors import OptionError
+
+    if text is None:
+        return None
+    words = [w.strip() for w in text.split(",")]
+    if not any(words) or not all(words):
+        raise OptionError(f"--method: give method names separated by commas, e.g. 'regression,bartlett', not '{text}'")
+    return words
+
+
+def run(args: argparse.Namespace) -> int:
+    from pathlib import Path
+
+    from cfa_tool import cli
+    from cfa_tool.errors import OptionError
+    from cfa_tool.reporting.json_report import to_json
+    from cfa_tool.reporting.score_report import render_scores, scores_html_report, scores_markdown
+    from cfa_tool.workflows.factor_scores import score_with_saved_fit, scores
+
+    require_suffix("--output", args.output, ".csv", "the scores")
+    outputs = [("--output", args.output), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown)]
+    check_files(args, outputs, [args.model, args.data, args.from_fit])
+    if args.from_fit:
+        given = getattr(args, "_given_options", set())
+        for dest, option in FITTING_OPTIONS:
+            if dest in given:
+                raise OptionError(f"{option} is about fitting the model, and with --from-fit the parameters come from "
+                                  f"the earlier fit (its groups too), so it cannot apply; remove it")
+        result = score_with_saved_fit(Path(args.model), args.from_fit, args.data, methods=_methods(args.method),
+                                      standard_errors=args.standard_errors, id_column=args.id, sheet=args.sheet,
+                                      missing_codes=args.missing_codes, keep=args.keep)
+    else:
+        result = scores(Path(args.model), args.data, methods=_methods(args.method), standard_errors=args.standard_errors,
+                        id_column=args.id, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
+                        missing_codes=args.missing_codes, keep=args.keep, ordinal=cli._ordinal_arg(args.ordinal),
+                        ordinal_estimator=args.ordinal_estimator, missing=args.missing,
+                        max_iterations=args.max_iterations)
+    files = [("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")]
+    if args.json:
+        files.append(("--json", to_json(result), f"JSON result written to {args.json}"))
+    if args.html:
+        files.append(("--html", scores_html_report(result), f"HTML report written to {args.html}"))
+    if args.markdown:
+        files.append(("--markdown", scores_markdown(result), f"Markdown report written to {args.markdown}"))
+    if not args._stdout_taken:
+        render_scores(result, cli._console())
+    write_reports(args, files)
+    if result.low_determinacy:
+        say(args, f"Caution: the determinacy of {', '.join(result.low_determinacy)} is below .80; see the report")
+    return 0

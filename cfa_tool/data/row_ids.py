@@ -1,0 +1,69 @@
+"""Names of data rows: an id column the user names (``--id``), or the file's row-name column.
+
+An id column is never analysed: it must exist, and it may not be a model variable or the group
+column.  Ids are kept as text, one per row of the data as read (before row filters), so outputs
+can name each row by its id beside its data-row number.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+from cfa_tool.errors import OptionError, printable
+from cfa_tool.suggest import close_names
+
+
+def _text(value) -> str | None:
+    if value is None or (not isinstance(value, str) and pd.isna(value)):
+        return None
+    if isinstance(value, (float, np.floating)):
+        return f"{float(value):.15g}"
+    return str(value)
+
+
+def row_ids(frame: pd.DataFrame, source: str, id_column: str | None, model_variables: tuple[str, ...],
+            group: str | None = None, row_names: pd.Series | None = None) -> pd.Series | None:
+    """The id of each row of ``frame`` (the data as read, before filters) as text (None where the cell is
+    empty), on ``frame``'s index: the values of ``id_column`` when given (checked), else the file's row names,
+    else None."""
+    if id_column is None:
+        return row_names
+    if not isinstance(id_column, str):
+        raise OptionError(f"the id column must be given by its name (text), not {type(id_column).__name__}")
+    columns = [str(c) for c in frame.columns]
+    if id_column not in columns:
+        guess = close_names(id_column, columns)
+        hint = f"; did you mean '{printable(guess[0])}'?" if guess else ""
+        raise OptionError(f"the id column '{printable(id_column)}' is not a column of {source}{hint}")
+    if id_column in model_variables:
+        raise OptionError(f"'{printable(id_column)}' is a variable of the model and cannot also be the id column "
+                          f"(an id column is never analysed)")
+    if group is not None and id_column == group:
+        raise OptionError(f"'{printable(id_column)}' is the group column and cannot also be the id column")
+    values = frame[frame.columns[columns.index(id_column)]]
+    return values.map(_text).rename(None)
+
+
+def ids_by_row_number(ids: pd.Series | None, frame: pd.DataFrame) -> dict[int, str | None]:
+    """Data-row number (as the case diagnostics count them) -> id."""
+    if ids is None:
+        return {}
+    from cfa_tool.data.moments import row_numbers
+
+    return dict(zip(row_numbers(frame).tolist(), ids.tolist()))
+
+
+def duplicate_note(ids: pd.Series | None, what: str) -> list[str]:
+    """A note when ids repeat or are missing (they then do not name one row each)."""
+    if ids is None:
+        return []
+    present = ids.dropna()
+    notes = []
+    repeated = present[present.duplicated()]
+    if len(repeated):
+        notes.append(f"{what}: {len(repeated)} rows repeat an id used by an earlier row (e.g. "
+                     f"'{printable(str(repeated.iloc[0]))[:40]}'), so those ids do not name one row each")
+    if len(present) < len(ids):
+        notes.append(f"{what}: {len(ids) - len(present)} rows have no id")
+    return notes

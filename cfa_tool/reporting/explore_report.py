@@ -1,0 +1,333 @@
+"""The report of an exploration: the shared report tables (ReportTable) drawn in the terminal, HTML
+and Markdown, a scree plot (inline SVG) in HTML, and the draft model."""
+
+from __future__ import annotations
+
+import io
+
+import numpy as np
+
+from cfa_tool.reporting import tables as T
+from cfa_tool.reporting.escape import html_text as esc
+from cfa_tool.reporting.escape import markdown_text
+from cfa_tool.reporting.numbers import num, unit
+from cfa_tool.reporting.tables import GUIDE_NOTE, ReportTable, _table
+
+SPLIT_STATEMENT = ("The rows were divided at random into two halves (seed {seed}): the number of factors, the solution "
+                   "and the draft model come from the exploration half ({first} rows) alone; the confirmation half "
+                   "({second} rows) was not used to choose the model, only to fit it.")
+SAME_DATA_CAUTION = ("The draft model was chosen from these data; fitted to the same data its fit looks better than it "
+                     "is. Fit it to other data (or explore with --split SEED).")
+SCREE_ROWS = 20  # positions shown in the eigenvalue table and the scree plot
+
+
+PROBLEMS_HEADING = "Check before interpreting this solution"
+
+
+def problem_notice(result) -> T.ProblemNotice | None:
+    """The exploratory solution's problems as the notice every view shows first (None when there are none)."""
+    lines = result.problems()
+    return T.ProblemNotice(PROBLEMS_HEADING, tuple(lines), True) if lines else None
+
+
+def header_lines(result) -> list[str]:
+    ex = result.exploration
+    half = " (the exploration half)" if result.split is not None else ""
+    kind = "polychoric" if ex.data.kind.value == "polychoric" else "Pearson"
+    return [f"Data: {result.source}; {ex.data.n_obs} rows analysed{half} of {result.rows_read} read",
+            f"Items ({len(result.items)}): {', '.join(result.items)}",
+            f"{ex.settings.extraction.value} extraction from the {kind} correlations; "
+            f"{ex.rotated.spec.method.value} rotation" + (" (oblique: the factors may correlate)" if ex.rotated.oblique
+                                                          else " (orthogonal: uncorrelated factors)")]
+
+
+def count_table(result) -> ReportTable:
+    from cfa_tool.workflows.explore import RULE_WORDS
+
+    count = result.exploration.count
+    rows = [[RULE_WORDS[s.rule], "" if s.factors is None else str(s.factors),
+             "yes" if s.rule in count.combined else ""] for s in count.suggestions]
+    return _table("factor_count", "How many factors: what each rule suggests",
+                  [("Rule", "l"), ("Factors", "r"), ("Part of the recommendation", "l")], rows,
+                  f"Parallel analysis: {count.parallel.replications} random data sets of the same size, "
+                  f"{count.parallel.percentile:g}th percentile (Glorfeld 1995). An empty cell: the rule found no "
+                  f"count among the solutions tried.")
+
+
+def eigenvalue_table(result) -> ReportTable:
+    pa = result.exploration.count.parallel
+    k = min(len(pa.component_eigenvalues), SCREE_ROWS)
+    rows = [[str(i + 1), num(pa.component_eigenvalues[i]), num(pa.component_reference[i]),
+             num(pa.factor_eigenvalues[i]), num(pa.factor_reference[i])] for i in range(k)]
+    return _table("eigenvalues", "Eigenvalues beside those of random data",
+                  [("Position", "r"), ("Components", "r"), ("Random, 95th percentile", "r"), ("Factors", "r"),
+                   ("Random, 95th percentile", "r")], rows,
+                  "Components: eigenvalues of the correlation matrix; factors: of the reduced matrix (squared multiple "
+                  "correlations on the diagonal). A factor counts while its eigenvalue exceeds the random one.")
+
+
+def fits_table(result) -> ReportTable:
+    rows = []
+    for step in result.fits:
+        f = step.solution.fit
+        low, high = f.rmsea_ci90
+        test = "no test" if f.df == 0 else f"{f.chi_square:.3f} on {f.df} df, p {T.p_phrase(f.p_value)}"
+        rows.append([str(step.factors), test, "" if f.df == 0 else f"{unit(f.rmsea)} [{unit(low)}, {unit(high)}]",
+                     num(f.bic, 1), unit(f.srmr), "Heywood case" if step.improper else ""])
+    return _table("solution_fits", "Fit of maximum-likelihood solutions with 1 to K + 2 factors",
+                  [("Factors", "r"), ("Chi-square", "r"), ("RMSEA [90% interval]", "r"), ("BIC", "r"), ("SRMR", "r"),
+                   ("Problem", "l")], rows, GUIDE_NOTE,
+                  flagged=tuple(i for i, s in enumerate(result.fits) if s.improper))
+
+
+def _faint(matrix: np.ndarray, threshold: float, offset: int = 1) -> tuple[tuple[int, int], ...]:
+    return tuple((i, j + offset) for i in range(matrix.shape[0]) for j in range(matrix.shape[1])
+                 if abs(matrix[i, j]) < threshold)
+
+
+def loading_table(result, structure: bool = False) -> ReportTable:
+    ex = result.exploration
+    names = ex.draft.factor_names
+    matrix = ex.rotated.structure if structure else ex.rotated.pattern
+    order = result.order or tuple(range(len(result.items)))
+    shown = matrix[list(order)]
+    threshold = ex.draft.threshold
+    rows = []
+    for i, k in enumerate(order):
+        cells = [result.items[k]] + [unit(v, 2) for v in shown[i]]
+        if not structure:
+            cells += [unit(ex.communalities[k], 2), "at bound" if result.items[k] in ex.solution.at_bound else ""]
+        rows.append(cells)
+    cols = [("Item", "l")] + [(n, "r") for n in names]
+    if not structure:
+        cols += [("Communality", "r"), ("Problem", "l")]
+    title = ("Structure loadings (correlations of items with factors)" if structure else
+             "Pattern loadings" + (" (oblique rotation)" if ex.rotated.oblique else ""))
+    note = (f"Items sorted by the factor of their largest loading, then by its size. Loadings below {unit(threshold, 2)} "
+            f"in absolute value are shown faintly.")
+    if not structure and ex.errors is not None and ex.errors.unavailable is None:
+        note += (" Standard errors of the pattern loadings (delta method; normal theory for Pearson correlations) are in "
+                 "the JSON output.")
+    at_bound = tuple(i for i, k in enumerate(order) if result.items[k] in ex.solution.at_bound) if not structure else ()
+    return ReportTable(("structure" if structure else "pattern"), title, tuple(c for c, _ in cols),
+                       tuple(a for _, a in cols), tuple(tuple(r) for r in rows), note, at_bound,
+                       faint=_faint(shown, threshold))
+
+
+def factor_correlation_table(result) -> ReportTable | None:
+    ex = result.exploration
+    if not ex.rotated.oblique or ex.factors < 2:
+        return None
+    names = ex.draft.factor_names
+    phi = ex.rotated.factor_correlations
+    rows = [[names[i]] + [unit(phi[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
+            for i in range(1, len(names))]
+    return _table("factor_correlations", "Factor correlations", [("", "l")] + [(n, "r") for n in names[:-1]], rows)
+
+
+def solution_line(result) -> str:
+    ex = result.exploration
+    f = ex.solution.fit
+    r = ex.rotated
+    rotation = ("" if r.spec.method.value == "none" or ex.factors == 1 else
+                f" Rotation {'converged' if r.converged else 'DID NOT CONVERGE'}; {r.starts_at_best} of {r.starts} "
+                f"starts reached the lowest criterion value.")
+    test = "no test (0 df)" if f.df == 0 or f.statistic is None else \
+        f"chi-square {f.chi_square:.3f} on {f.df} df, p {T.p_phrase(f.p_value)}, RMSEA {unit(f.rmsea)}"
+    return f"The {ex.factors}-factor solution: {test}, SRMR {unit(f.srmr)}.{rotation}"
+
+
+def split_lines(result) -> list[str]:
+    s = result.split
+    if s is None:
+        return [SAME_DATA_CAUTION]
+    lines = [SPLIT_STATEMENT.format(seed=s.seed, first=len(s.exploration_rows), second=len(s.confirmation_rows))]
+    if s.note:
+        lines.append(f"No confirmation: {s.note}.")
+    return lines
+
+
+def explore_tables(result) -> list[ReportTable]:
+    out = [count_table(result), eigenvalue_table(result), fits_table(result), loading_table(result)]
+    if result.exploration.rotated.oblique and result.factors > 1:
+        out.append(loading_table(result, structure=True))
+    extra = factor_correlation_table(result)
+    if extra is not None:
+        out.append(extra)
+    return out
+
+
+def confirmation_tables(result) -> list[ReportTable]:
+    fit = result.split.confirmation if result.split is not None else None
+    if fit is None:
+        return []
+    out = [T.fit_table(fit)] if fit.fit is not None and fit.converged else []
+    return out + T.estimate_tables(fit)[:1]
+
+
+def render_explore(result, console) -> None:
+    from rich.text import Text
+
+    from cfa_tool.reporting.terminal import problem_panel, rich_table
+
+    notice = problem_notice(result)
+    if notice is not None:
+        console.print(problem_panel(notice))
+        console.print()
+    console.print(Text("Exploratory factor analysis", style="bold underline"))
+    for line in header_lines(result):
+        console.print(line)
+    console.print()
+    for line in result.reasons():
+        console.print(Text(line, style="bold"))
+    console.print(Text(_rules_caution(), style="italic"))
+    console.print()
+    for table in explore_tables(result):
+        console.print(rich_table(table))
+    console.print(solution_line(result))
+    console.print()
+    console.print(Text("Draft model", style="bold"))
+    console.print(Text(result.draft_text), soft_wrap=True)  # the file's lines as written, never wrapped
+    for line in split_lines(result):
+        console.print(Text(line, style="bold"))
+    confirmation = result.split.confirmation if result.split is not None else None
+    if confirmation is not None:
+        console.print(Text("Confirmation half: the draft model fitted", style="bold underline"))
+        notice = T.problem_notice(confirmation)
+        if notice is not None:
+            console.print(problem_panel(notice))
+        for table in confirmation_tables(result):
+            console.print(rich_table(table))
+    if result.notes:
+        console.print(Text("Notes", style="bold"))
+        for line in result.notes:
+            console.print(f"  - {line}")
+
+
+def _rules_caution() -> str:
+    from cfa_tool.workflows.explore import RULES_CAUTION
+
+    return RULES_CAUTION
+
+
+def render_explore_text(result, width: int = 120) -> str:
+    from cfa_tool.reporting.terminal import SafeConsole
+
+    buffer = io.StringIO()
+    render_explore(result, SafeConsole(file=buffer, width=width, no_color=True, highlight=False, emoji=False, markup=False))
+    return buffer.getvalue()
+
+
+def scree_svg(result, width: int = 560, height: int = 320) -> str:
+    """Eigenvalues by position (components and factors) with the 95th percentiles of random data, as inline SVG."""
+    pa = result.exploration.count.parallel
+    k = min(len(pa.component_eigenvalues), SCREE_ROWS)
+    series = [("Components", pa.component_eigenvalues[:k], "#1f3b73", ""),
+              ("Components, random 95th percentile", pa.component_reference[:k], "#1f3b73", "6,4"),
+              ("Factors", pa.factor_eigenvalues[:k], "#b3261e", ""),
+              ("Factors, random 95th percentile", pa.factor_reference[:k], "#b3261e", "6,4")]
+    low = min(0.0, float(min(s[1].min() for s in series)))
+    high = float(max(s[1].max() for s in series))
+    left, right, top, bottom = 48, 16, 16, 40
+    legend = 18 * len(series) + 8
+
+    def x(i: float) -> float:
+        return left + (width - left - right) * (i / max(k - 1, 1))
+
+    def y(v: float) -> float:
+        return top + (height - top - bottom) * (1 - (v - low) / (high - low if high > low else 1))
+
+    parts = [f'<svg xmlns="http://www.w3.org/2000/svg" width="{width}" height="{height + legend}" '
+             f'viewBox="0 0 {width} {height + legend}" role="img" aria-label="Scree plot">',
+             f'<line x1="{left}" y1="{y(low):.1f}" x2="{width - right}" y2="{y(low):.1f}" stroke="#333"/>',
+             f'<line x1="{left}" y1="{top}" x2="{left}" y2="{y(low):.1f}" stroke="#333"/>']
+    if low < 0:
+        parts.append(f'<line x1="{left}" y1="{y(0):.1f}" x2="{width - right}" y2="{y(0):.1f}" stroke="#bbb"/>')
+    for i in range(k):
+        parts.append(f'<text x="{x(i):.1f}" y="{y(low) + 16:.1f}" font-size="11" text-anchor="middle">{i + 1}</text>')
+    for tick in np.linspace(low, high, 5):
+        parts.append(f'<text x="{left - 6}" y="{y(tick) + 4:.1f}" font-size="11" text-anchor="end">{tick:.1f}</text>')
+    parts.append(f'<text x="{(left + width - right) / 2:.1f}" y="{height - 6}" font-size="12" text-anchor="middle">'
+                 f'Position</text>')
+    for n, (label, values, colour, dash) in enumerate(series):
+        points = " ".join(f"{x(i):.1f},{y(float(v)):.1f}" for i, v in enumerate(values))
+        dashes = f' stroke-dasharray="{dash}"' if dash else ""
+        parts.append(f'<polyline points="{points}" fill="none" stroke="{colour}" stroke-width="2"{dashes}/>')
+        if not dash:
+            parts += [f'<circle cx="{x(i):.1f}" cy="{y(float(v)):.1f}" r="3" fill="{colour}"/>' for i, v in enumerate(values)]
+        ly = height + 12 + 18 * n
+        parts.append(f'<line x1="{left}" y1="{ly}" x2="{left + 30}" y2="{ly}" stroke="{colour}" stroke-width="2"{dashes}/>')
+        parts.append(f'<text x="{left + 38}" y="{ly + 4}" font-size="12">{esc(label)}</text>')
+    parts.append("</svg>")
+    return "".join(parts)
+
+
+def explore_html_fragment(result) -> str:
+    from cfa_tool.reporting.html_report import table_html
+
+    notice = problem_notice(result)
+    parts = []
+    if notice is not None:
+        items = "".join(f"<li>{esc(line)}</li>" for line in notice.lines)
+        parts.append(f'<div class="problems" id="problems" role="alert"><h2>{esc(notice.heading)}</h2><ul>{items}</ul></div>')
+    parts += [f'<p class="note">{esc(line)}</p>' for line in header_lines(result)]
+    parts += [f'<p class="summary">{esc(line)}</p>' for line in result.reasons()]
+    parts.append(f'<p class="caution">{esc(_rules_caution())}</p>')
+    tables = explore_tables(result)
+    parts += [table_html(tables[0]), table_html(tables[1]), f'<div class="diagram">{scree_svg(result)}</div>']
+    parts += [table_html(t) for t in tables[2:]]
+    parts.append(f"<p>{esc(solution_line(result))}</p>")
+    return "\n".join(parts)
+
+
+def explore_html_report(result) -> str:
+    from cfa_tool.version import __version__
+    from cfa_tool.reporting.html_report import CSS, problem_banner, table_html
+
+    fragment = explore_html_fragment(result)
+    banner_end = fragment.index("</div>") + len("</div>") if fragment.startswith('<div class="problems"') else 0
+    sections = [fragment[:banner_end], "<h1>Exploratory factor analysis</h1>", fragment[banner_end:], "<h2>Draft model</h2>",
+                f"<pre>{esc(result.draft_text)}</pre>"]
+    sections += [f'<p class="caution">{esc(line)}</p>' for line in split_lines(result)]
+    confirmation = result.split.confirmation if result.split is not None else None
+    if confirmation is not None:
+        sections.append("<h2>Confirmation half: the draft model fitted</h2>")
+        sections.append(problem_banner(confirmation))
+        sections += [table_html(t) for t in confirmation_tables(result)]
+    if result.notes:
+        sections.append("<h2>Notes</h2>")
+        sections.append('<ul class="warnings">' + "".join(f"<li>{esc(w)}</li>" for w in result.notes) + "</ul>")
+    sections.append(f'<p class="note">Made by cfa-tool {esc(__version__)}.</p>')
+    return (f'<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">'
+            f'<meta name="viewport" content="width=device-width, initial-scale=1">'
+            f"<title>Exploratory factor analysis</title><style>{CSS}</style></head>\n<body>\n"
+            + "\n".join(s for s in sections if s) + "\n</body></html>\n")
+
+
+def explore_markdown(result) -> str:
+    from cfa_tool.reporting.text_formats import markdown_table
+
+    parts = []
+    notice = problem_notice(result)
+    if notice is not None:
+        parts += [f"## {markdown_text(notice.heading)}", ""] + [f"- {markdown_text(line)}" for line in notice.lines] + [""]
+    parts += ["# Exploratory factor analysis", ""]
+    parts += [markdown_text(line) + "  " for line in header_lines(result)] + [""]
+    parts += [f"**{markdown_text(line)}**" for line in result.reasons()] + ["", f"*{markdown_text(_rules_caution())}*", ""]
+    parts += [markdown_table(t) for t in explore_tables(result)]
+    parts += [markdown_text(solution_line(result)), "", "## Draft model", "", "```", result.draft_text.rstrip("\n"), "```", ""]
+    parts += [markdown_text(line) for line in split_lines(result)] + [""]
+    confirmation = result.split.confirmation if result.split is not None else None
+    if confirmation is not None:
+        parts += ["## Confirmation half: the draft model fitted", ""]
+        notice = T.problem_notice(confirmation)
+        if notice is not None:
+            parts += [f"**{markdown_text(notice.heading)}**", ""] + [f"- {markdown_text(x)}" for x in notice.lines] + [""]
+        parts += [markdown_table(t) for t in confirmation_tables(result)]
+    if result.notes:
+        parts += ["## Notes", ""] + [f"- {markdown_text(w)}" for w in result.notes] + [""]
+    return "\n".join(parts)
+
+
+__all__ = ["explore_html_fragment", "explore_html_report", "explore_markdown", "render_explore", "render_explore_text",
+           "scree_svg"]

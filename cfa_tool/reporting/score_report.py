@@ -1,0 +1,213 @@
+"""The report of a factor-score run: the shared report tables (ReportTable), drawn in the terminal,
+HTML and Markdown by the existing renderers.  Problems of the fitted solution come first."""
+
+from __future__ import annotations
+
+import io
+
+from cfa_tool.reporting import tables as T
+from cfa_tool.reporting.escape import html_text as esc
+from cfa_tool.reporting.escape import markdown_text
+from cfa_tool.reporting.numbers import unit
+from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
+from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
+
+SCORES_CAUTION = (
+    "Factor scores are estimates, not the factors themselves: with the same data, other equally valid scores exist. "
+    "Scores for decisions about individuals (selection, diagnosis, placement) need evidence of validity for that use "
+    "and professional judgement.")
+
+METHOD_LABELS = {ScoreMethod.REGRESSION: "regression", ScoreMethod.BARTLETT: "Bartlett",
+                 ScoreMethod.CORRELATION_PRESERVING: "correlation-preserving",
+                 ScoreMethod.EXPECTED_A_POSTERIORI: "posterior mean"}
+
+
+#: short column headers (the notes name the methods in full)
+METHOD_COLUMNS = {ScoreMethod.REGRESSION: "Regression", ScoreMethod.BARTLETT: "Bartlett",
+                  ScoreMethod.CORRELATION_PRESERVING: "Corr.-preserving"}
+
+
+def _where(q) -> str:
+    return f" (group {q.group})" if q.group is not None else ""
+
+
+def header_lines(result) -> list[str]:
+    fit = result.fit
+    methods = ", ".join(METHOD_LABELS[m] for m in result.methods)
+    first = f"{result.id_name}, then " if result.id_name else ""
+    scored = [f"Scored data: {result.scored_source} (with the parameters of the fit above)"] if result.scored_source else []
+    return [f"Model file: {fit.model_source}", f"Data: {fit.data.source}; the model was fitted to {fit.n_obs} rows", *scored,
+            f"Scores ({methods}) of {result.rows} rows, one per row of the data in the file's order; columns: "
+            f"{first}one per factor" + ("" if not result.standard_errors else
+                                        " with its posterior standard deviation" if ScoreMethod.EXPECTED_A_POSTERIORI
+                                        in result.methods else " with its standard error")]
+
+
+def caution_lines(result) -> list[str]:
+    """The low-determinacy caution, one line per group and factor below the common-practice level."""
+    lines = []
+    for q in result.quality:
+        for name, rho, low in zip(q.factors, q.determinacy, q.low_determinacy):
+            if low:
+                lines.append(f"The determinacy of {name}{_where(q)} is {unit(rho, 2)}, below {unit(DETERMINACY_CAUTION, 2)} "
+                             f"(common practice, no single source): its scores should not be used for decisions about "
+                             f"individuals.")
+    return lines
+
+
+def quality_table(result, k: int) -> ReportTable:
+    q = result.quality[k]
+    ordinal = not hasattr(q, "methods")
+    if ordinal:
+        rows = [[name, unit(rho) + (" (below .80)" if low else ""), unit(rel)]
+                for name, rho, rel, low in zip(q.factors, q.determinacy, q.reliability, q.low_determinacy)]
+        cols = [("Factor", "l"), ("Determinacy", "r"), ("Reliability", "r")]
+        note = ("Posterior-mean scores in these data: reliability Var(score) / (Var(score) + mean posterior variance), the "
+                "squared correlation of the score with its factor (law of total variance); determinacy its square root.")
+    else:
+        cols = [("Factor", "l"), ("Determinacy", "r")] + [(METHOD_COLUMNS[m.method], "r") for m in q.methods]
+        rows = []
+        for f, name in enumerate(q.factors):
+            rows.append([name, unit(q.determinacy[f]) + (" (below .80)" if q.low_determinacy[f] else "")]
+                        + [unit(m.reliability[f]) for m in q.methods])
+        note = ("Determinacy: the correlation of the regression scores with their factor (Grice 2001). Then the "
+                "reliability of each method's scores (Corr.-preserving: correlation-preserving scores): the squared correlation of "
+                "the score with its factor (Beauducel 2011). Values "
+                "under the fitted model with every item answered; methods marked with * are written to the file: "
+                + ", ".join(METHOD_LABELS[m] + ("*" if m in result.methods else "") for m in LINEAR_METHODS) + ".")
+    title = "Quality of the scores" + _where(q) + ("" if ordinal else ": determinacy, and reliability by method")
+    return _table(f"score_quality_{k}", title, cols, rows, note,
+                  flagged=tuple(i for i, low in enumerate(q.low_determinacy) if low))
+
+
+def correlation_table(result, k: int) -> ReportTable | None:
+    q = result.quality[k]
+    if not hasattr(q, "methods") or len(q.factors) < 2:
+        return None
+    rows = []
+    for i in range(len(q.factors)):
+        for j in range(i):
+            rows.append([q.factors[j], q.factors[i], unit(q.factor_correlations[i, j])]
+                        + [unit(m.score_correlations[i, j]) for m in q.methods])
+    return _table(f"score_correlations_{k}", "Correlations of the scores beside the factors' correlations" + _where(q),
+                  [("Factor", "l"), ("With", "l"), ("Factors", "r")]
+                  + [(METHOD_COLUMNS[m.method], "r") for m in q.methods], rows,
+                  "The factors' correlations, then those of each method's scores (Corr.-preserving: correlation-preserving "
+                  "scores), under the fitted model. Regression scores as a rule overstate the factors' correlations; "
+                  "correlation-preserving scores keep them (Grice 2001; ten Berge et al. 1999).")
+
+
+def sum_table(result, k: int) -> ReportTable | None:
+    q = result.quality[k]
+    if not hasattr(q, "sums") or not q.sums:
+        return None
+    rho = dict(zip(q.factors, q.determinacy))
+    rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(s.validity), unit(rho[s.factor])]
+            for s in q.sums]
+    return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
+                  [("Factor", "l"), ("Items", "r"), ("Reversed for the sum", "l"), ("Omega of the sum", "r"),
+                   ("Sum with factor r", "r"), ("Regression score with factor r", "r")], rows,
+                  "The unit-weighted sum of each factor's items (reverse-keyed items reversed); omega of that sum "
+                  "(McDonald 1999). The last two columns show what the simpler score loses against the factor score.")
+
+
+def unscored_table(result) -> ReportTable | None:
+    if not result.unscored:
+        return None
+    rows = [[reason, METHOD_LABELS.get(next((m for m in ScoreMethod if m.value == method), None), method)]
+            + [str(c) for c in counts] for reason, method, counts in result.unscored]
+    return _table("unscored", "Rows without scores (empty cells), by reason",
+                  [("Reason", "l"), ("Method", "l")] + [(f, "r") for f in result.factors], rows,
+                  "These rows stay in the file, in their place, with empty cells.")
+
+
+def score_tables(result) -> list[ReportTable]:
+    out = []
+    for k in range(len(result.quality)):
+        out += [t for t in (quality_table(result, k), correlation_table(result, k), sum_table(result, k)) if t is not None]
+    extra = unscored_table(result)
+    if extra is not None:
+        out.append(extra)
+    return out
+
+
+def notes(result) -> list[str]:
+    return list(result.fit.warnings) + list(result.notes)
+
+
+def render_scores(result, console) -> None:
+    from rich.text import Text
+
+    from cfa_tool.reporting.terminal import problem_panel, rich_table
+
+    notice = T.problem_notice(result.fit)
+    if notice is not None:
+        console.print(problem_panel(notice))
+        console.print()
+    console.print(Text(f"Factor scores: {result.fit.model_name}", style="bold underline"))
+    for line in header_lines(result):
+        console.print(line)
+    console.print()
+    for line in caution_lines(result):
+        console.print(Text(line, style="bold"))
+    for table in score_tables(result):
+        console.print(rich_table(table))
+    if notes(result):
+        console.print(Text("Notes", style="bold"))
+        for line in notes(result):
+            console.print(f"  - {line}")
+        console.print()
+    console.print(Text(SCORES_CAUTION, style="italic"))
+    console.print(Text(HIGH_STAKES_NOTE, style="italic"))
+
+
+def render_scores_text(result, width: int = 120) -> str:
+    from cfa_tool.reporting.terminal import SafeConsole
+
+    buffer = io.StringIO()
+    render_scores(result, SafeConsole(file=buffer, width=width, no_color=True, highlight=False, emoji=False, markup=False))
+    return buffer.getvalue()
+
+
+def scores_html_fragment(result) -> str:
+    from cfa_tool.reporting.html_report import problem_banner, table_html
+
+    parts = [problem_banner(result.fit)]
+    parts += [f'<p class="note">{esc(line)}</p>' for line in header_lines(result)]
+    parts += [f'<p class="caution">{esc(line)}</p>' for line in caution_lines(result)]
+    parts += [table_html(t) for t in score_tables(result)]
+    return "\n".join(p for p in parts if p)
+
+
+def scores_html_report(result) -> str:
+    from cfa_tool.version import __version__
+    from cfa_tool.reporting.html_report import CSS
+
+    sections = [scores_html_fragment(result).replace(
+        '<p class="note">', f"<h1>Factor scores: {esc(result.fit.model_name)}</h1>\n<p class=\"note\">", 1)]
+    if notes(result):
+        sections.append("<h2>Notes</h2>")
+        sections.append('<ul class="warnings">' + "".join(f"<li>{esc(w)}</li>" for w in notes(result)) + "</ul>")
+    sections += ["<h2>Cautions</h2>", f'<p class="caution">{esc(SCORES_CAUTION)}</p>',
+                 f'<p class="caution">{esc(HIGH_STAKES_NOTE)}</p>', f'<p class="note">Made by cfa-tool {esc(__version__)}.</p>']
+    title = esc(f"Factor scores: {result.fit.model_name}")
+    return (f'<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">'
+            f'<meta name="viewport" content="width=device-width, initial-scale=1">'
+            f"<title>{title}</title><style>{CSS}</style></head>\n<body>\n" + "\n".join(sections) + "\n</body></html>\n")
+
+
+def scores_markdown(result) -> str:
+    from cfa_tool.reporting.text_formats import markdown_table
+
+    parts = []
+    notice = T.problem_notice(result.fit)
+    if notice is not None:
+        parts += [f"## {markdown_text(notice.heading)}", ""] + [f"- {markdown_text(line)}" for line in notice.lines] + [""]
+    parts += [f"# Factor scores: {markdown_text(result.fit.model_name)}", ""]
+    parts += [markdown_text(line) + "  " for line in header_lines(result)] + [""]
+    parts += [f"**{markdown_text(line)}**" for line in caution_lines(result)] + [""]
+    parts += [markdown_table(t) for t in score_tables(result)]
+    if notes(result):
+        parts += ["## Notes", ""] + [f"- {markdown_text(w)}" for w in notes(result)] + [""]
+    parts += ["## Cautions", "", markdown_text(SCORES_CAUTION), "", markdown_text(HIGH_STAKES_NOTE), ""]
+    return "\n".join(parts)

@@ -1,0 +1,393 @@
+"""The step before confirmation: how many factors, an exploratory solution and a draft model file,
+from rows of data (cfa_tool.exploration holds the mathematics).
+
+With ``split`` (a seed), the rows are divided at random into two halves: the exploration runs on
+one, and the draft model is fitted on the other through the ordinary fit (``cfa_tool.fit``), so
+that the confirmation half played no part in choosing the model.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from cfa_tool.errors import OptionError, printable
+from cfa_tool.exploration import (CountNote, CountRule, Exploration, ExploreSettings, ExtractionMethod, RotationMethod,
+                                  RotationSpec, explore_correlations, from_ordinal_moments, from_sample_moments)
+from cfa_tool.exploration.factor_count import CLOSE_RMSEA, PERCENTILE, FitStep, fit_sequence
+from cfa_tool.pipeline.results import FitResult, clean
+from cfa_tool.views import Presentable
+
+#: what each rule for the number of factors is, in plain words (with its source)
+RULE_WORDS = {
+    CountRule.PARALLEL_COMPONENTS: "parallel analysis of components (Horn 1965)",
+    CountRule.PARALLEL_FACTORS: "parallel analysis of factors (Horn 1965; Humphreys & Ilgen 1969)",
+    CountRule.AVERAGE_PARTIAL: "minimum average partial correlation (Velicer 1976)",
+    CountRule.AVERAGE_PARTIAL_REVISED: "minimum average partial, fourth powers (Velicer, Eaton & Fava 2000)",
+    CountRule.LOWEST_BIC: "lowest BIC of the maximum-likelihood solutions (Schwarz 1978)",
+    CountRule.CLOSE_FIT: f"fewest factors with RMSEA at most {CLOSE_RMSEA:.2f} (Browne & Cudeck 1993; a convention)",
+}
+
+NOTE_WORDS = {
+    CountNote.RULES_DISAGREE: "The rules disagree about the number of factors.",
+    CountNote.NEXT_EIGENVALUE_BORDERLINE: "The next eigenvalue after the recommended number is above the average of the "
+                                          "random ones (though not above their 95th percentile): one more factor is "
+                                          "borderline.",
+    CountNote.NO_FACTOR_ABOVE_CHANCE: "No eigenvalue stands above those of random data of the same size: these items may "
+                                      "share no common factor at all; one factor is shown for inspection only.",
+    CountNote.POOR_FIT_AT_RECOMMENDED: "The recommended solution fits poorly (RMSEA above .08, a convention).",
+    CountNote.IMPROPER_AT_RECOMMENDED: "The recommended solution has an item whose uniqueness reached its lower bound "
+                                       "(a Heywood case).",
+}
+
+RULES_CAUTION = ("Rules for the number of factors often disagree in practice; the number is a judgement, and each factor "
+                 "should make sense in its items.")
+
+
+@dataclass(frozen=True, eq=False)
+class SplitHalves:
+    """The two random halves of an explore-then-confirm run."""
+
+    seed: int
+    exploration_rows: tuple[int, ...]  # data-row numbers (1 = first row after the header)
+    confirmation_rows: tuple[int, ...]
+    confirmation: FitResult | None  # the draft model fitted on the confirmation half (None: no usable draft)
+    note: str | None = None  # why there is no confirmation fit
+
+    def to_dict(self) -> dict:
+        return {"seed": self.seed, "exploration_rows": list(self.exploration_rows),
+                "confirmation_rows": list(self.confirmation_rows),
+                "confirmation_half_used_to_choose_the_model": False,
+                "confirmation": self.confirmation.to_dict() if self.confirmation is not None else None,
+                "note": self.note}
+
+
+@dataclass(frozen=True, eq=False)
+class ExploreResult(Presentable):
+    source: str
+    items: tuple[str, ...]
+    rows_read: int
+    exploration: Exploration
+    fits: tuple[FitStep, ...]  # maximum-likelihood solutions of 1 .. K + 2 factors
+    requested: int | None  # the number of factors asked for (None: the recommendation)
+    split: SplitHalves | None = None
+    notes: tuple[str, ...] = ()
+    order: tuple[int, ...] = field(default=(), repr=False)  # items sorted by factor, then by loading
+
+    @property
+    def factors(self) -> int:
+        return self.exploration.factors
+
+    @property
+    def recommended(self) -> int:
+        return self.exploration.count.recommended
+
+    @property
+    def draft_text(self) -> str:
+        return self.exploration.draft.text
+
+    def problems(self) -> list[str]:
+        """What makes the chosen solution doubtful, in plain words (every view shows these first)."""
+        ex = self.exploration
+        out = []
+        if not ex.solution.converged:
+            out.append(f"The {ex.factors}-factor extraction did not converge; its loadings are not a solution.")
+        if ex.solution.at_bound:
+            out.append(f"Heywood case: the uniqueness of {', '.join(ex.solution.at_bound)} reached its lower bound (the "
+                       f"factors would explain all of its variance); the solution may have too many factors or too few "
+                       f"rows.")
+        if not ex.rotated.converged:
+            out.append("The rotation did not converge; the pattern loadings are not at the criterion's optimum.")
+        return out
+
+    def reasons(self) -> list[str]:
+        """Why the recommendation is what it is, in plain words."""
+        count = self.exploration.count
+        combined = [f"{RULE_WORDS[r]}: {count.suggestion(r)}" for r in count.combined]
+        lines = [f"Recommended: {count.recommended} factor{'s' if count.recommended != 1 else ''}, the middle value of "
+                 f"three rules ({'; '.join(combined)})."]
+        lines += [NOTE_WORDS[n] for n in count.notes]
+        if self.requested is not None and self.requested != count.recommended:
+            lines.append(f"The solution below has {self.requested} factors, as asked, not the {count.recommended} "
+                         f"recommended.")
+        return lines
+
+    def to_dict(self) -> dict:
+        ex = self.exploration
+        rotated, count = ex.rotated, ex.count
+        pa = count.parallel
+        out = {
+            "problems": self.problems(),
+            "data": {"source": self.source, "rows_read": self.rows_read, "rows_used": ex.data.n_obs,
+                     "correlations": ex.data.kind.value},
+            "items": list(self.items),
+            "factor_count": {
+                "recommended": count.recommended,
+                "factors_used": ex.factors,
+                "requested": self.requested,
+                "rules": [{"rule": s.rule.value, "description": RULE_WORDS[s.rule], "factors": s.factors,
+                           "in_recommendation": s.rule in count.combined} for s in count.suggestions],
+                "notes": [n.value for n in count.notes],
+                "reasons": self.reasons(),
+                "caution": RULES_CAUTION,
+                "parallel_analysis": {"replications": pa.replications, "seed": pa.seed, "percentile": pa.percentile,
+                                      "component_eigenvalues": pa.component_eigenvalues.tolist(),
+                                      "component_reference": pa.component_reference.tolist(),
+                                      "factor_eigenvalues": pa.factor_eigenvalues.tolist(),
+                                      "factor_reference": pa.factor_reference.tolist()},
+                "average_partial": {"squared": count.average_partial.squared.tolist(),
+                                    "fourth_power": count.average_partial.fourth_power.tolist()},
+            },
+            "fits": [_fit_dict(step) for step in self.fits],
+            "solution": {
+                "extraction": ex.settings.extraction.value,
+                "rotation": rotated.spec.method.value,
+                "oblique": rotated.oblique,
+                "rotation_converged": rotated.converged,
+                "starts": rotated.starts,
+                "starts_at_best": rotated.starts_at_best,
+                "pattern": rotated.pattern.tolist(),
+                "structure": rotated.structure.tolist() if rotated.oblique else None,
+                "factor_correlations": rotated.factor_correlations.tolist(),
+                "communalities": ex.communalities.tolist(),
+                "uniquenesses": ex.solution.uniquenesses.tolist(),
+                "at_bound": list(ex.solution.at_bound),
+                "pattern_standard_errors": ex.errors.pattern.tolist() if ex.errors is not None else None,
+                "standard_errors_unavailable": (ex.errors.unavailable.value if ex.errors is not None
+                                                and ex.errors.unavailable is not None else None),
+                "fit": _fit_dict(FitStep(ex.factors, ex.solution)),
+            },
+            "draft": {"text": self.draft_text, "factor_names": list(ex.draft.factor_names),
+                      "usable": ex.draft.usable, "threshold": ex.draft.threshold,
+                      "placements": [{"item": p.item, "placement": p.placement.value,
+                                      "factor": ex.draft.factor_names[p.factor], "loading": p.loading}
+                                     for p in ex.draft.placements]},
+            "split": self.split.to_dict() if self.split is not None else None,
+            "notes": list(self.notes),
+        }
+        return clean(out)
+
+
+    def __str__(self) -> str:
+        return self.summary()
+
+
+def _fit_dict(step: FitStep) -> dict:
+    f = step.solution.fit
+    return {"factors": step.factors, "statistic": f.statistic.value if f.statistic is not None else None,
+            "chi_square": f.chi_square, "df": f.df, "p_value": f.p_value, "rmsea": f.rmsea,
+            "rmsea_ci90": list(f.rmsea_ci90), "bic": f.bic, "srmr": f.srmr, "improper": step.improper}
+
+
+def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str], source: str) -> tuple[str, ...] | None:
+    """Items from a list of names, or from text: names separated by commas, where 'a..b' is every column of the
+    data from column a to column b in the file's order."""
+    if text is None:
+        return None
+    if isinstance(text, (list, tuple)):
+        pieces = list(text)
+        if not all(isinstance(p, str) for p in pieces):
+            raise OptionError("items must be column names (text)")
+    elif isinstance(text, str):
+        pieces = [p.strip() for p in text.split(",")]
+        if not all(pieces):
+            raise OptionError(f"items: give column names separated by commas (a..b for a span of columns), not "
+                              f"'{printable(text)}'")
+    else:
+        raise OptionError(f"items must be column names, not {type(text).__name__}")
+    out: list[str] = []
+    for piece in pieces:
+        ends = piece.split("..") if ".." in piece and piece not in columns else [piece]
+        for end in ends:
+            if end not in columns:
+                from cfa_tool.suggest import close_names
+
+                guess = close_names(end, columns)
+                raise OptionError(f"items: {source} has no column '{printable(end)}'"
+                                  + (f"; did you mean '{printable(guess[0])}'?" if guess else ""))
+        if len(ends) == 2:
+            lo, hi = columns.index(ends[0]), columns.index(ends[1])
+            if lo > hi:
+                raise OptionError(f"items: '{printable(piece)}': column '{printable(ends[0])}' comes after "
+                                  f"'{printable(ends[1])}' in {source}; write the span in the file's order")
+            span = columns[lo:hi + 1]
+        elif len(ends) == 1:
+            span = ends
+        else:
+            raise OptionError(f"items: '{printable(piece)}' is not a column name or a span a..b")
+        for name in span:
+            if name in out:
+                raise OptionError(f"items: '{printable(name)}' is named twice")
+            out.append(name)
+    return tuple(out)
+
+
+def _numeric_columns(frame: pd.DataFrame) -> tuple[str, ...]:
+    return tuple(str(c) for c in frame.columns if pd.api.types.is_numeric_dtype(frame[c]) and not
+                 pd.api.types.is_bool_dtype(frame[c]))
+
+
+def _factor_choice(factors) -> int | None:
+    if factors is None or (isinstance(factors, str) and factors.strip() == "auto"):
+        return None
+    if isinstance(factors, str):
+        try:
+            factors = int(factors.strip())
+        except ValueError:
+            raise OptionError(f"the number of factors must be a whole number or 'auto', not '{printable(factors)}'") from None
+    return factors
+
+
+def _enum(kind, value, what: str):
+    if isinstance(value, kind):
+        return value
+    try:
+        return kind(value)
+    except ValueError:
+        raise OptionError(f"the {what} must be one of {', '.join(m.value for m in kind)}, not "
+                          f"'{printable(str(value))}'") from None
+
+
+def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = RotationMethod.QUARTIMIN,
+            extraction: str | ExtractionMethod = ExtractionMethod.MAXIMUM_LIKELIHOOD, ordinal=None,
+            split: int | None = None, sheet: str | None = None, missing_codes=(), keep=(), replications: int = 100,
+            seed: int = 0, threshold: float = 0.30, target=None) -> ExploreResult:
+    """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
+
+    ``items``: column names, or text 'a, b, c' with 'a..b' for a span of columns (default: every column that
+    holds numbers); ``factors``: a whole number, or None / 'auto' for the recommended number; ``rotation``:
+    varimax, quartimin (default), oblimin, geomin, promax, target (with ``target``, a matrix with NaN where
+    unspecified) or none; ``extraction``: maximum-likelihood (default) or least-squares; ``ordinal``: 'all' or
+    items to analyse by polychoric correlations; ``split``: a seed: explore one random half of the rows and fit
+    the draft model on the other; ``replications`` and ``seed``: of parallel analysis and the rotation's random
+    starts; ``threshold``: the loading at which an item counts on a factor in the draft model.
+    """
+    from cfa_tool import options
+    from cfa_tool.pipeline import inputs as api
+    from cfa_tool.data.filters import apply_filters, parse_filter
+    from cfa_tool.data.moments import row_numbers
+
+    if api.summary_source(data):
+        raise OptionError(f"'{data}' holds summary statistics; explore needs the rows of answers (a correlation "
+                          f"matrix alone is analysed with cfa_tool.exploration)")
+    loaded = api.load_data(data, sheet, missing_codes)
+    frame, source = loaded.frame, loaded.source
+    columns = [str(c) for c in frame.columns]
+    if len(set(columns)) != len(columns):
+        raise OptionError(f"{source}: the column name '{next(c for c in columns if columns.count(c) > 1)}' appears twice")
+    frame = frame.set_axis(columns, axis=1)
+    rows_read = len(frame)
+    notes: list[str] = list(loaded.notes)
+    keep = api.keep_option(keep)
+    if keep:
+        frame, filter_notes = apply_filters(frame, [parse_filter(k) for k in keep], source)
+        notes += filter_notes
+    chosen = item_names(items, columns, source)
+    if chosen is None:
+        chosen = _numeric_columns(frame)
+        notes.append(f"Items: every column of {source} that holds numbers ({len(chosen)}); choose them with --items.")
+    requested = _factor_choice(factors)
+    rotation_method = _enum(RotationMethod, rotation, "rotation")
+    extraction_method = _enum(ExtractionMethod, extraction, "extraction")
+    if rotation_method is RotationMethod.TARGET and target is None:
+        raise OptionError("target rotation needs a target matrix (loadings to aim at, NaN where unspecified), which the "
+                          "Python entry point takes (target=...); choose another rotation here")
+    ordinal_items = _ordinal_items(ordinal, chosen)
+    halves = None
+    if split is not None:
+        split = options.seed(split)
+        numbers = row_numbers(frame)
+        order = np.random.default_rng(split).permutation(len(frame))
+        first = np.sort(order[: (len(frame) + 1) // 2])
+        second = np.sort(order[(len(frame) + 1) // 2:])
+        explored, confirming = frame.iloc[first], frame.iloc[second]
+        halves = (tuple(int(v) for v in numbers[first]), tuple(int(v) for v in numbers[second]), confirming)
+        frame = explored
+    names = tuple(chosen)
+    correlations = _correlations(frame, names, source, ordinal_items, notes)
+    settings = ExploreSettings(factors=requested, extraction=extraction_method,
+                               rotation=RotationSpec(rotation_method, target=target), replications=replications,
+                               seed=seed, count=True, threshold=threshold)
+    exploration = explore_correlations(correlations, settings)
+    fits = exploration.count.fits
+    largest = exploration.factors + 2
+    if max((f.factors for f in fits), default=0) < largest:
+        from cfa_tool.numerics.threads import blas_threads_for
+
+        with blas_threads_for(correlations.p):
+            fits = fit_sequence(correlations, largest)
+    fits = tuple(f for f in fits if f.factors <= max(largest, exploration.count.recommended + 2))
+    split_result = None
+    if halves is not None:
+        split_result = _confirm(exploration, halves, split, source, ordinal_items)
+    return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
+                         sorted_items(exploration))
+
+
+def _ordinal_items(ordinal, items: tuple[str, ...]) -> tuple[str, ...]:
+    if ordinal is None:
+        return ()
+    if ordinal == "all":
+        return tuple(items)
+    names = [ordinal] if isinstance(ordinal, str) else list(ordinal)
+    for name in names:
+        if name not in items:
+            raise OptionError(f"'{printable(name)}' is given as ordinal but is not one of the items explored")
+    return tuple(names)
+
+
+def _correlations(frame, names, source, ordinal_items, notes):
+    from cfa_tool.data.moments import _numeric_rows, sample_moments
+
+    if ordinal_items:
+        from cfa_tool.data.polychoric import ordinal_moments
+
+        continuous = frozenset(x for x in names if x not in ordinal_items)
+        moments = ordinal_moments(frame, names, source, continuous)
+        left = len(frame) - moments.n_obs
+        if left:
+            notes.append(f"{left} rows with gaps on the items were left out (polychoric correlations need complete rows).")
+        return from_ordinal_moments(moments)
+    values = _numeric_rows(frame, names, source)
+    gaps = int(np.isnan(values).any(axis=1).sum())
+    missing = "full-information" if gaps else "listwise"
+    moments = sample_moments(frame, names, source, missing=missing)
+    if gaps:
+        notes.append(f"{gaps} rows miss some answers; the correlations are the maximum-likelihood (EM) estimates from "
+                     f"every answer, and N is the {moments.n_obs} rows with at least one answer.")
+    return from_sample_moments(moments)
+
+
+def _confirm(exploration: Exploration, halves, seed: int, source: str, ordinal_items) -> SplitHalves:
+    from cfa_tool.pipeline import inputs as api
+    from cfa_tool.errors import CfaError
+
+    first, second, confirming = halves
+    if not exploration.draft.usable:
+        return SplitHalves(seed, first, second, None, "the draft model has no factor with enough items, so there is "
+                                                      "nothing to confirm")
+    try:
+        fitted = api.fit(exploration.draft.text, confirming)  # its index keeps the data-row numbers
+    except CfaError as exc:
+        return SplitHalves(seed, first, second, None, f"the draft model could not be fitted on the confirmation half: "
+                                                      f"{exc}")
+    fitted = replace_source(fitted, f"{source} (confirmation half, {len(second)} rows)")
+    return SplitHalves(seed, first, second, fitted)
+
+
+def replace_source(result: FitResult, source: str) -> FitResult:
+    from dataclasses import replace
+
+    return replace(result, data=replace(result.data, source=source), model_name="Draft model from the exploration",
+                   model_source="draft model (exploration half)")
+
+
+def sorted_items(exploration: Exploration) -> tuple[int, ...]:
+    """Item positions sorted by the factor of their largest absolute pattern loading, then by that loading's size."""
+    pattern = exploration.rotated.pattern
+    top = np.argmax(np.abs(pattern), axis=1)
+    size = np.abs(pattern[np.arange(len(pattern)), top])
+    return tuple(int(i) for i in np.lexsort((-size, top)))
+

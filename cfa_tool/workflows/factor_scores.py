@@ -1,0 +1,600 @@
+"""Factor scores of every data row from a model fitted to those rows, and how good the scores are.
+
+The fit is the one ``cfa_tool.fit`` makes (same data options); the scores use its parameters
+(:mod:`cfa_tool.scoring`): each group's own intercepts, factor means, loadings and variances, each
+row scored from the items it answered (for regression scores, the full-information posterior mean),
+ordinal items by their posterior mean over the latent-response model (expected a posteriori) with
+posterior standard deviations.  The output has one row per row of the data as read, in the file's
+order; a row that cannot be scored keeps empty cells, and the report counts them by reason.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from enum import Enum
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from cfa_tool.errors import EstimationError, OptionError, printable
+from cfa_tool.numerics.plain import csv_cell
+from cfa_tool.pipeline.results import FitResult, clean
+from cfa_tool.views import Presentable
+from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod, Unscored
+from cfa_tool.scoring.quality import ScoreQuality
+
+
+class RowLeftOut(Enum):
+    """Why a whole row of the data has no scores, beyond the reasons of :class:`Unscored`."""
+
+    FILTERED = "left out by a row filter (--keep)"
+    NO_GROUP = "no value in the group column"
+    UNKNOWN_GROUP = "a group the fit does not have"
+
+
+#: the header of the id column when the file's row names name the rows
+ROW_NAME_HEADER = "row_name"
+
+#: the words --method takes, one per linear method (ordinal items have one method: the posterior mean)
+METHOD_WORDS = {m.value: m for m in LINEAR_METHODS}
+
+
+def method_option(methods) -> tuple[ScoreMethod, ...]:
+    """Linear methods from words ('regression', 'bartlett', 'correlation-preserving'), a list of them, or
+    ScoreMethod values; each at most once."""
+    if methods is None:
+        return (ScoreMethod.REGRESSION,)
+    if isinstance(methods, (str, ScoreMethod)):
+        methods = [methods]
+    if not isinstance(methods, (list, tuple)) or not methods:
+        raise OptionError("methods must be one method or a list of them: " + ", ".join(METHOD_WORDS))
+    out = []
+    for m in methods:
+        if isinstance(m, str):
+            m = m.strip()
+            if m not in METHOD_WORDS:
+                raise OptionError(f"unknown scoring method '{printable(m)}': choose from {', '.join(METHOD_WORDS)}")
+            m = METHOD_WORDS[m]
+        if m not in LINEAR_METHODS:
+            raise OptionError(f"'{m.value}' is not a method to choose: ordinal items are always scored by their "
+                              f"posterior mean")
+        if m in out:
+            raise OptionError(f"the scoring method '{m.value}' is given twice")
+        out.append(m)
+    return tuple(out)
+
+
+def column_name(factor: str, method: ScoreMethod, what: str = "") -> str:
+    """Output column of a factor's score by a method: e.g. 'visual_regression', 'visual_regression_se'."""
+    word = {ScoreMethod.EXPECTED_A_POSTERIORI: "posterior_mean"}.get(method, method.value.replace("-", "_"))
+    if what == "se":
+        word = "posterior_sd" if method is ScoreMethod.EXPECTED_A_POSTERIORI else word + "_se"
+    return f"{factor}_{word}"
+
+
+@dataclass(frozen=True, eq=False)
+class OrdinalQuality:
+    """Quality of posterior-mean (EAP) scores in the data, by the law of total variance: Var(eta) =
+    Var(E[eta | y]) + E[Var(eta | y)], so the squared correlation of the EAP score with its factor is
+    Var(EAP) / (Var(EAP) + mean posterior variance) (the empirical or marginal reliability)."""
+
+    group: str | None
+    factors: tuple[str, ...]
+    reliability: tuple[float, ...]
+
+    @property
+    def determinacy(self) -> tuple[float, ...]:
+        return tuple(float(np.sqrt(r)) if np.isfinite(r) else float("nan") for r in self.reliability)
+
+    @property
+    def low_determinacy(self) -> tuple[bool, ...]:
+        return tuple(bool(d < DETERMINACY_CAUTION) for d in self.determinacy)
+
+    def to_dict(self) -> dict:
+        return clean({"group": self.group, "factors": list(self.factors), "determinacy": list(self.determinacy),
+                      "reliability": list(self.reliability), "low_determinacy": list(self.low_determinacy),
+                      "determinacy_caution": DETERMINACY_CAUTION})
+
+
+@dataclass(frozen=True, eq=False)
+class ScoreResult(Presentable):
+    """Scores of every row of the data, with the fit they come from and their quality."""
+
+    fit: FitResult | SavedFit  # the fit the scores come from (an earlier one saved as JSON: SavedFit)
+    methods: tuple[ScoreMethod, ...]
+    factors: tuple[str, ...]
+    id_name: str | None  # header of the id column of the output (None: no id column)
+    table: pd.DataFrame = field(repr=False)  # the output: id column first, then the score columns
+    quality: tuple  # ScoreQuality (continuous items) or OrdinalQuality, one per group
+    unscored: tuple[tuple[str, str, tuple[int, ...]], ...]  # (reason, method, rows without a score of each factor)
+    standard_errors: bool
+    notes: tuple[str, ...] = ()
+    scored_source: str | None = None  # the data scored, when they are not the data the model was fitted to
+
+    @property
+    def rows(self) -> int:
+        return len(self.table)
+
+    @property
+    def low_determinacy(self) -> tuple[str, ...]:
+        """Factors whose scores fall below the determinacy caution in some group."""
+        out = []
+        for q in self.quality:
+            out += [f for f, low in zip(q.factors, q.low_determinacy) if low and f not in out]
+        return tuple(out)
+
+    def to_dict(self) -> dict:
+        return {
+            "admissible": self.fit.admissible,
+            "problems": [p.to_dict() for p in self.fit.problems],
+            "rows": self.rows,
+            "methods": [m.value for m in self.methods],
+            "factors": list(self.factors),
+            "id_column": self.id_name,
+            "scored_data": self.scored_source,
+            "columns": [str(c) for c in self.table.columns],
+            "standard_errors": self.standard_errors,
+            "unscored": [{"reason": r, "method": m, "rows": dict(zip(self.factors, map(int, counts)))}
+                         for r, m, counts in self.unscored],
+            "quality": [q.to_dict() for q in self.quality],
+            "determinacy_caution": DETERMINACY_CAUTION,
+            "low_determinacy": list(self.low_determinacy),
+            "notes": list(self.notes),
+            "fit": self.fit.to_dict(),
+        }
+
+    def csv(self) -> str:
+        """The scores as CSV text: full precision, empty cells where there is no score."""
+        guarded = self.table.set_axis([csv_cell(c) for c in self.table.columns], axis=1)
+        if self.id_name is not None:
+            guarded.iloc[:, 0] = guarded.iloc[:, 0].map(lambda v: None if v is None else csv_cell(v))
+        return guarded.to_csv(index=False, na_rep="", float_format="%.10g", lineterminator="\n")
+
+
+    def __str__(self) -> str:
+        return self.summary()
+
+
+def scores(model, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
+           group: str | None = None, reference_group: str | None = None, sheet: str | None = None,
+           missing_codes=(), keep=(), ordinal=None, ordinal_estimator: str | None = None, **options) -> ScoreResult:
+    """Fit ``model`` to ``data`` (as :func:`cfa_tool.fit` does, same options) and score every row.
+
+    ``methods``: 'regression' (Thurstone 1935; the default), 'bartlett' (Bartlett 1937),
+    'correlation-preserving' (Anderson & Rubin 1956; ten Berge et al. 1999), or a list of them; ordinal
+    items are scored by their posterior mean with its posterior standard deviation instead.
+    ``standard_errors``: also write each score's standard error (root mean squared error about the
+    factor given the row's answered items; for regression scores the posterior standard deviation).
+    ``id_column``: a column written first to name each row (never analysed); without it, the file's
+    row-name column (a first column without a name in the header) is written first when there is one.
+
+    Raises :class:`~cfa_tool.errors.EstimationError` when the fitted solution is not admissible: such
+    a solution's scores would mean nothing.
+    """
+    from cfa_tool.pipeline import inputs as api
+    from cfa_tool.data.row_ids import duplicate_note, row_ids
+
+    if api.summary_source(data):
+        raise OptionError(f"'{data}' holds summary statistics; factor scores need the rows of answers")
+    chosen = method_option(methods)
+    if not isinstance(standard_errors, bool):
+        raise OptionError("standard_errors must be True or False")
+    fit_options = api.make_options(options)
+    spec, loaded, notes = api.read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    frame, source = loaded.frame, loaded.source
+    read_frame = loaded.read_frame if loaded.read_frame is not None else frame
+    read_index = read_frame.index
+    if not read_index.is_unique:
+        raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index) so "
+                          "that every row can be scored in its place")
+    ids = row_ids(read_frame, source, id_column, spec.observed_names, group, loaded.row_names)
+    ordinal_items = api.ordinal_items_of(spec, ordinal)
+    if ordinal_items and methods is not None:
+        raise OptionError("ordinal items are scored by their posterior mean (with its standard deviation), so a "
+                          "scoring method cannot be chosen; remove that option")
+    result = api._fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator)
+    if not result.admissible:
+        problem = next((p for p in result.problems if p.kind.inadmissible), None)
+        why = problem.phrase() if problem is not None else result.message
+        raise EstimationError(f"the fitted solution is not admissible ({why}), so no factor scores are written; "
+                              f"run 'fit' to see its problems")
+    if ordinal_items:
+        chosen = (ScoreMethod.EXPECTED_A_POSTERIORI,)
+        models, labels = _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, result)
+    else:
+        models, labels = _linear_models(spec, frame, source, group, reference_group, fit_options, result)
+    factors = models[0].base.factors if ordinal_items else models[0].factors
+    items = models[0].base.items if ordinal_items else models[0].items
+    rows = _numeric(frame, items, source)
+    group_of_row = _group_keys(frame, group) if group is not None else np.full(len(frame), None, dtype=object)
+    kept = frame.index
+
+    m = len(factors)
+    values = {meth: np.full((len(read_index), m), np.nan) for meth in chosen}
+    errors = {meth: np.full((len(read_index), m), np.nan) for meth in chosen}
+    counts: dict = {}
+    position = pd.Series(np.arange(len(read_index)), index=read_index)
+    for model_g, label in zip(models, labels):
+        sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(frame))
+        if not len(sel):
+            continue
+        at = position.loc[kept[sel]].to_numpy()
+        if ordinal_items:
+            from cfa_tool.scoring.ordinal import eap_scores
+
+            out = {chosen[0]: eap_scores(model_g, rows[sel])}
+        else:
+            from cfa_tool.scoring.linear import score_rows
+
+            out = score_rows(model_g, rows[sel], chosen)
+        for meth, block in out.items():
+            values[meth][at] = block.scores
+            errors[meth][at] = block.standard_errors
+            for why, c in block.unscored.items():
+                key = (why.value, meth.value)
+                counts[key] = counts.get(key, np.zeros(m, dtype=np.int64)) + np.asarray(c, dtype=np.int64)
+    left_out = len(read_index) - len(frame)
+    if left_out:
+        for meth in chosen:
+            counts[(RowLeftOut.FILTERED.value, meth.value)] = np.full(m, left_out)
+    if group is not None:
+        no_group = int(pd.isna(group_of_row).sum())
+        if no_group:
+            for meth in chosen:
+                counts[(RowLeftOut.NO_GROUP.value, meth.value)] = np.full(m, no_group)
+
+    columns: dict[str, object] = {}
+    id_name = None
+    if ids is not None:
+        id_name = id_column if id_column is not None else ROW_NAME_HEADER
+        columns[id_name] = ids.tolist()
+    for meth in chosen:
+        for f, name in enumerate(factors):
+            columns[column_name(name, meth)] = values[meth][:, f]
+            if standard_errors or ordinal_items:
+                columns[column_name(name, meth, "se")] = errors[meth][:, f]
+    table = pd.DataFrame(columns)
+    if id_name is not None and id_name in list(table.columns)[1:]:
+        raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
+    quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group) \
+        if ordinal_items else _linear_quality(models)
+    extra = duplicate_note(ids, "id column" if id_column is not None else "row names")
+    if ids is not None and id_column is None:
+        extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
+                        f"the header); give --id COLUMN to name the rows by another column.")
+    own = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal_items)
+    unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
+    return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
+                       bool(standard_errors or ordinal_items), tuple(extra + own))
+
+
+def models_of_fit(result: FitResult) -> tuple[list, list]:
+    """Each group's scoring model from a fit result alone (its model text and estimates), for scoring other
+    data with the parameters of this fit.  A fit without a mean structure (one group, complete rows) takes
+    its intercepts from the sample means of the rows it was fitted to."""
+    from cfa_tool.pipeline.continuous import model_structure
+    from cfa_tool.language.parser import parse_model
+    from cfa_tool.scoring.model import scoring_model
+
+    if result.method.ordinal:
+        raise OptionError("scoring new data with an earlier fit is available for continuous items only; for ordinal "
+                          "items, score the data the model is fitted to (cfa_tool.scores)")
+    if result.theta is None:
+        raise OptionError("this result holds no estimates to score with (a fit to summary statistics?)")
+    spec = parse_model(result.model_text, source=result.model_source)
+    labels = tuple(g.label for g in result.groups) if result.multigroup else None
+    mean_structure = result.multigroup or any(r.kind == "intercept" for r in result.estimates)
+    table, model = model_structure(spec, labels, mean_structure)
+    if table.n_free != len(result.theta) or tuple(table.observed) != tuple(result.observed):
+        raise OptionError("the result's estimates do not match its model text; refit the model")
+    out = []
+    for g, group in enumerate(result.groups):
+        means = None if mean_structure else np.asarray(group.sample_mean, dtype=float)
+        out.append(scoring_model(model.matrices(result.theta, g), table.observed, table.latent, group.label, means))
+    return out, [g.label for g in result.groups]
+
+
+def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
+                   sheet: str | None = None, missing_codes=(), keep=()) -> ScoreResult:
+    """Scores of the rows of ``data`` with the parameters of an earlier fit (``result``): a scale calibrated in one
+    sample scores another.  With groups, ``data`` needs the fit's group column, and each row is scored with its
+    group's parameters (a row of a group the fit does not have gets no scores).  The quality figures are those of
+    the fitted model; the report's fit is the earlier one."""
+    from cfa_tool.pipeline import inputs as api
+    from cfa_tool.data.filters import apply_filters, parse_filter
+    from cfa_tool.data.matching import check_columns
+    from cfa_tool.data.row_ids import duplicate_note, row_ids
+
+    if not isinstance(result, FitResult):
+        raise OptionError(f"scores need a fit result (cfa_tool.fit), not {type(result).__name__}")
+    if not result.admissible:
+        raise EstimationError("the fitted solution is not admissible, so no factor scores are computed with it")
+    chosen = method_option(methods)
+    models, labels = models_of_fit(result)
+    return _score_other_data(result, _spec_of(result), models, labels, data, chosen, standard_errors, id_column, sheet,
+                             missing_codes, keep)
+
+
+def _score_other_data(result, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
+                      keep) -> ScoreResult:
+    """Rows of ``data`` scored with the given models (one per group of the earlier fit ``result``)."""
+    from cfa_tool.pipeline import inputs as api
+    from cfa_tool.data.filters import apply_filters, parse_filter
+    from cfa_tool.data.matching import check_columns
+    from cfa_tool.data.row_ids import duplicate_note, row_ids
+
+    loaded = api.load_data(data, sheet, missing_codes)
+    read_frame, source = loaded.frame.set_axis([str(c) for c in loaded.frame.columns], axis=1), loaded.source
+    if not read_frame.index.is_unique:
+        raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index)")
+    check_columns(spec, list(read_frame.columns), source)
+    group = result.group_column
+    if group is not None and group not in read_frame.columns:
+        raise OptionError(f"the fit has groups by '{printable(group)}', which is not a column of {source}")
+    ids = row_ids(read_frame, source, id_column, result.observed, group, loaded.row_names)
+    frame, notes = read_frame, []
+    keep = api.keep_option(keep)
+    if keep:
+        frame, notes = apply_filters(read_frame, [parse_filter(k) for k in keep], source)
+    rows = _numeric(frame, models[0].items, source)
+    group_of_row = _group_keys(frame, group) if group is not None else np.full(len(frame), None, dtype=object)
+    from cfa_tool.scoring.linear import score_rows
+
+    m = models[0].m
+    n = len(read_frame)
+    values = {meth: np.full((n, m), np.nan) for meth in chosen}
+    errors = {meth: np.full((n, m), np.nan) for meth in chosen}
+    position = pd.Series(np.arange(n), index=read_frame.index)
+    counts: dict = {}
+    for model_g, label in zip(models, labels):
+        sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(frame))
+        if not len(sel):
+            continue
+        at = position.loc[frame.index[sel]].to_numpy()
+        for meth, block in score_rows(model_g, rows[sel], chosen).items():
+            values[meth][at], errors[meth][at] = block.scores, block.standard_errors
+            for why, c in block.unscored.items():
+                key = (why.value, meth.value)
+                counts[key] = counts.get(key, np.zeros(m, dtype=np.int64)) + np.asarray(c, dtype=np.int64)
+    for reason, number in ((RowLeftOut.FILTERED.value, n - len(frame)),
+                           (RowLeftOut.NO_GROUP.value, int(pd.isna(group_of_row).sum()) if group is not None else 0),
+                           (RowLeftOut.UNKNOWN_GROUP.value, int(sum(1 for v in group_of_row if v is not None
+                                                                    and v not in labels)) if group is not None else 0)):
+        if number:
+            for meth in chosen:
+                counts[(reason, meth.value)] = np.full(m, number)
+    factors = models[0].factors
+    columns: dict[str, object] = {}
+    id_name = None
+    if ids is not None:
+        id_name = id_column if id_column is not None else ROW_NAME_HEADER
+        columns[id_name] = ids.tolist()
+    for meth in chosen:
+        for f, name in enumerate(factors):
+            columns[column_name(name, meth)] = values[meth][:, f]
+            if standard_errors:
+                columns[column_name(name, meth, "se")] = errors[meth][:, f]
+    notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names")
+    notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
+                    f"{result.data.source}; the quality figures are those of that fit.")
+    unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
+    return ScoreResult(result, chosen, tuple(factors), id_name, pd.DataFrame(columns), tuple(_linear_quality(models)),
+                       unscored, bool(standard_errors), tuple(notes), source)
+
+
+@dataclass(frozen=True, eq=False)
+class SavedFit:
+    """An earlier fit as its JSON result holds it: what the report of scores made with it shows."""
+
+    model_name: str
+    model_source: str
+    estimator: str
+    n_obs: int
+    data: object  # DataSummary
+    observed: tuple[str, ...]
+    problems: tuple
+    warnings: tuple[str, ...]
+    group_column: str | None
+    payload: dict = field(repr=False)
+
+    @property
+    def admissible(self) -> bool:
+        return bool(self.payload.get("converged")) and not any(p.kind.inadmissible for p in self.problems)
+
+    def to_dict(self) -> dict:
+        return {k: v for k, v in self.payload.items() if k not in ("tool", "version")}
+
+
+def read_saved_fit(path) -> SavedFit:
+    """A fit's JSON result (``fit --json``), checked to be one."""
+    import json
+
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.input_files import input_bytes
+    from cfa_tool.pipeline.results import DataSummary
+
+    raw = input_bytes(Path(path), "fit result", OptionError, 200_000_000)
+    try:
+        payload = json.loads(raw.decode("utf-8"))
+        if payload.get("tool") != "cfa-tool" or "estimates" not in payload:
+            raise ValueError
+        d = payload["data"]
+        summary = DataSummary(str(d["source"]), int(d["rows_read"]), int(d["rows_dropped"]), int(d["n_obs"]),
+                              tuple(d["variables"]), tuple(float(v) for v in d["means"]), tuple(float(v) for v in d["sds"]))
+        problems = tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
+                                 q["advice"], q["group"]) for q in payload.get("problems", ()))
+        model = payload["model"]
+    except (ValueError, KeyError, TypeError, AttributeError, UnicodeDecodeError):
+        raise OptionError(f"'{printable(str(path))}' is not the JSON result of a fit by cfa-tool (fit --json)") from None
+    if payload.get("ordinal_items"):
+        raise OptionError("scoring new data with an earlier fit is available for continuous items only")
+    return SavedFit(str(model.get("name")), str(model.get("source")), str(payload.get("estimator")), int(payload["n_obs"]),
+                    summary, tuple(summary.variables), problems, tuple(payload.get("warnings", ())),
+                    payload.get("group_column"), payload)
+
+
+def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
+    """Each group's scoring model from ``spec`` (the model file the fit was made with) and the estimates of its
+    JSON result: every estimate is matched to its parameter in the model's table (the same kind, variables and
+    group, in the same order), the free parameters are read back, and every estimate is recomputed from them
+    (an error when anything differs: the result is of another model)."""
+    from cfa_tool.pipeline.continuous import model_structure
+    from cfa_tool.scoring.model import scoring_model
+
+    estimates = saved.payload["estimates"]
+    multi = saved.group_column is not None
+    labels = tuple(g["name"] for g in saved.payload.get("groups", ())) if multi else None
+    mean_structure = multi or any(e.get("kind") == "intercept" for e in estimates)
+    table, model = model_structure(spec, labels, mean_structure)
+    another = OptionError(f"the fit result is not of the model {spec.source} (its estimates differ from the model's "
+                          f"parameters); give the model file the fit was made with")
+    if len(estimates) != len(table.parameters):
+        raise another
+    theta = np.full(table.n_free, np.nan)
+    values = []
+    for par, est in zip(table.parameters, estimates):
+        group = table.groups[par.group] if table.multigroup else None
+        if est.get("kind") != par.kind or tuple(est.get("variables", ())) != par.variables or est.get("group") != group:
+            raise another
+        value = est.get("estimate")
+        if not isinstance(value, (int, float)):
+            raise another
+        values.append(float(value))
+        if len(par.terms) == 1 and par.terms[0][1] != 0:
+            index, coefficient = par.terms[0]
+            theta[index] = (value - par.offset) / coefficient
+    if np.isnan(theta).any():
+        raise another
+    for par, value in zip(table.parameters, values):
+        again = par.offset + sum(c * theta[i] for i, c in par.terms)
+        if abs(again - value) > 1e-8 * (1.0 + abs(value)):
+            raise another
+    out = []
+    for g in range(table.n_groups):
+        means = None
+        if not mean_structure:
+            names = list(saved.data.variables)
+            means = np.array([saved.data.means[names.index(x)] for x in table.observed])
+        out.append(scoring_model(model.matrices(theta, g), table.observed, table.latent,
+                                 labels[g] if labels else None, means))
+    return out, list(labels) if labels else [None]
+
+
+def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_errors: bool = False,
+                         id_column: str | None = None, sheet: str | None = None, missing_codes=(), keep=()) -> ScoreResult:
+    """Scores of the rows of ``data`` with the parameters of a fit saved as JSON (``fit --json``) of ``model``."""
+    from cfa_tool.pipeline import inputs as api
+
+    saved = read_saved_fit(saved_path)
+    if not saved.admissible:
+        raise EstimationError(f"the fit in '{printable(str(saved_path))}' is not admissible, so no factor scores are "
+                              f"computed with it")
+    spec = api.load_spec(model)
+    chosen = method_option(methods)
+    models, labels = models_of_saved_fit(spec, saved)
+    return _score_other_data(saved, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
+                             keep)
+
+
+def _spec_of(result: FitResult):
+    from cfa_tool.language.parser import parse_model
+
+    return parse_model(result.model_text, source=result.model_source)
+
+
+def _numeric(frame: pd.DataFrame, items: tuple[str, ...], source: str) -> np.ndarray:
+    from cfa_tool.data.moments import _numeric_rows
+
+    return _numeric_rows(frame, items, source)
+
+
+def _group_keys(frame: pd.DataFrame, group: str) -> np.ndarray:
+    from cfa_tool.data.labels import label_text
+
+    return frame[group].map(lambda v: None if pd.isna(v) else label_text(v)).to_numpy(object)
+
+
+@dataclass(frozen=True)
+class _Fitted:
+    """What the scoring inputs read from a fit: its parameter table, model and estimates."""
+
+    table: object
+    model: object
+    theta: np.ndarray
+
+
+def _linear_models(spec, frame, source, group, reference_group, fit_options, result):
+    from cfa_tool.pipeline import inputs as api
+    from cfa_tool.pipeline.continuous import model_structure
+    from cfa_tool.scoring.model import score_inputs
+
+    options, _ = api.choose_missing_handling(fit_options, frame, spec.observed_names, group)
+    groups, _ = api.moments_for(spec, frame, source, group, reference_group, options.missing)
+    labels = tuple(label for label, _ in groups) if group is not None else None
+    table, model = model_structure(spec, labels, options.missing == "full-information")
+    if table.n_free != len(result.theta):
+        raise AssertionError("the fitted parameters do not match the model's table")
+    return score_inputs(_Fitted(table, model, result.theta), groups), [label for label, _ in groups]
+
+
+def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, result):
+    from cfa_tool.pipeline import inputs as api
+    from cfa_tool.scoring.model import one_group_ordinal_inputs, ordinal_score_inputs
+
+    if group is None:
+        from cfa_tool.data.polychoric import ordinal_moments
+        from cfa_tool.model.implied import StructuredModel
+        from cfa_tool.model.parameters import build_parameter_table
+        from cfa_tool.pipeline.ordinal import ordinal_spec
+
+        table = build_parameter_table(ordinal_spec(spec)[0])
+        continuous = frozenset(x for x in table.observed if x not in ordinal_items)
+        moments = ordinal_moments(frame, table.observed, source, continuous)
+        mats = StructuredModel(table).matrices(result.theta)
+        return [one_group_ordinal_inputs(mats, table.observed, table.latent, moments)], [None]
+    from cfa_tool.model.implied import StructuredModel
+    from cfa_tool.model.parameters import build_parameter_table
+
+    groups, _ = api.ordinal_groups(spec, frame, source, group, reference_group, ordinal_items)
+    labels = tuple(label for label, _ in groups)
+    n_thresholds = {x: len(t) for x, t in zip(spec.observed_names, groups[0][1].thresholds)}
+    table = build_parameter_table(spec, labels, ordinal=n_thresholds)
+    if table.n_free != len(result.theta):
+        raise AssertionError("the fitted parameters do not match the model's table")
+    return list(ordinal_score_inputs(_Fitted(table, StructuredModel(table), result.theta), groups)), list(labels)
+
+
+def _linear_quality(models) -> list[ScoreQuality]:
+    from cfa_tool.scoring.quality import score_quality
+
+    return [score_quality(m) for m in models]
+
+
+def _ordinal_quality(models, labels, values, errors, position, kept, group_of_row, group) -> list[OrdinalQuality]:
+    out = []
+    for model_g, label in zip(models, labels):
+        sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(kept))
+        at = position.loc[kept[sel]].to_numpy()
+        v, e = values[at], errors[at]
+        ok = ~np.isnan(v)
+        reliability = []
+        for f in range(v.shape[1]):
+            s, sd = v[ok[:, f], f], e[ok[:, f], f]
+            between = float(np.var(s)) if len(s) > 1 else float("nan")
+            reliability.append(between / (between + float(np.mean(sd**2))) if len(s) > 1 else float("nan"))
+        out.append(OrdinalQuality(label, model_g.base.factors, tuple(reliability)))
+    return out
+
+
+def _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal) -> list[str]:
+    from cfa_tool.scoring.model import without_own_answers
+
+    total = np.zeros(len(factors), dtype=np.int64)
+    for model_g, label in zip(models, labels):
+        sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(rows))
+        part = rows[sel]
+        answered = ~np.isnan(part).all(axis=1)
+        total += without_own_answers(model_g.base if ordinal else model_g, part[answered]).sum(axis=0)
+    return [f"{int(n)} rows answered none of the items of {name}; their score of {name} rests on the other factors' "
+            f"items alone (through the factors' correlations)" for name, n in zip(factors, total) if n]

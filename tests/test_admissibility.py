@@ -1,0 +1,174 @@
+"""An impossible solution is the first thing every view shows.
+
+The Heywood case used throughout: the Holzinger-Swineford (1939) three-factor model with the residual
+covariances x7-x8 and x8-x9 added converges to a negative residual variance of x9.  Its value is checked
+against a direct minimisation of the maximum-likelihood discrepancy written here with scipy (an
+implementation that shares nothing with the package)."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+from scipy.optimize import minimize
+
+import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.reporting.html_report import html_report
+from cfa_tool.reporting.paragraph import methods_paragraph
+from cfa_tool.reporting.terminal import render_text
+from cfa_tool.reporting.text_formats import csv_table, markdown_report
+from cfa_tool.reporting import tables as T
+from tests.test_cli import run
+
+HEYWOOD = """factor visual: x1, x2, x3
+factor textual: x4, x5, x6
+factor speed: x7, x8, x9
+covary x7, x8
+covary x8, x9
+"""
+PLAIN = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+ITEMS = [f"x{i}" for i in range(1, 10)]
+
+
+@pytest.fixture(scope="module")
+def heywood(hs_data):
+    return cfa_tool.fit(HEYWOOD, hs_data)
+
+
+def _scipy_minimum(S: np.ndarray) -> np.ndarray:
+    """The ML estimates of the Heywood model by direct minimisation of
+    F = log|Sigma| + tr(S Sigma^-1) - log|S| - p (Joreskog 1967), no bounds."""
+    p = 9
+
+    def sigma(t):
+        L = np.zeros((p, 3))
+        L[[0, 3, 6], [0, 1, 2]] = 1.0
+        L[[1, 2], 0], L[[4, 5], 1], L[[7, 8], 2] = t[0:2], t[2:4], t[4:6]
+        phi = np.array([[t[6], t[9], t[10]], [t[9], t[7], t[11]], [t[10], t[11], t[8]]])
+        theta = np.diag(t[12:21])
+        theta[6, 7] = theta[7, 6] = t[21]
+        theta[7, 8] = theta[8, 7] = t[22]
+        return L @ phi @ L.T + theta
+
+    def f(t):
+        s = sigma(t)
+        sign, logdet = np.linalg.slogdet(s)
+        if sign <= 0:
+            return 1e10
+        return logdet + np.trace(np.linalg.solve(s, S)) - np.linalg.slogdet(S)[1] - p
+
+    start = np.r_[np.ones(6), np.diag(S)[[0, 3, 6]] / 2, np.zeros(3), np.diag(S) / 2, 0.0, 0.0]
+    best = minimize(f, start, method="BFGS", options={"gtol": 1e-9, "maxiter": 20000})
+    return best.x
+
+
+def test_the_heywood_case_is_found_and_matches_a_direct_minimisation(heywood, hs_data):
+    rows = hs_data[ITEMS].to_numpy(float)
+    S = np.cov(rows.T, bias=True)  # ML uses the covariance matrix with divisor N
+    theta = _scipy_minimum(S)
+    x9 = next(r.estimate for r in heywood.estimates if r.kind == "residual_variance" and r.variables == ("x9",))
+    assert theta[20] < 0
+    assert x9 == pytest.approx(theta[20], abs=2e-3)
+    assert x9 == pytest.approx(-1.016, abs=1e-3)  # the value the issue reports
+    assert not heywood.admissible
+    kinds = [p.kind for p in heywood.problems]
+    assert ProblemKind.NEGATIVE_RESIDUAL_VARIANCE in kinds
+    problem = heywood.problems[kinds.index(ProblemKind.NEGATIVE_RESIDUAL_VARIANCE)]
+    assert problem.parameters == ("residual_variance(x9)",)
+    assert heywood.r_squared["x9"] == pytest.approx(2.001, abs=1e-3)
+
+
+def test_an_admissible_solution_has_no_problems(hs_data):
+    result = cfa_tool.fit(PLAIN, hs_data)
+    assert result.admissible and result.problems == ()
+    assert T.problem_notice(result) is None
+    assert "not admissible" not in render_text(result, width=100)
+    assert 'id="problems"' not in html_report(result)
+
+
+def test_terminal_shows_problems_before_the_fit_table(heywood):
+    text = render_text(heywood, width=100)
+    assert text.index(T.NOT_ADMISSIBLE) < text.index("Model fit")
+    assert text.index("x9 is negative") < text.index("Model fit")
+
+
+def test_html_banner_comes_first_and_marks_rows_and_diagram(heywood):
+    page = html_report(heywood)
+    body = page[page.index("<body>"):]
+    assert body.index('id="problems"') < body.index("<h1>") < body.index("Summary for a paper")
+    assert '<circle class="residual problem"' in page
+    assert '<tr class="problem">' in page
+
+
+def test_notebook_view_shows_the_banner_and_the_rows_used(heywood):
+    fragment = heywood._repr_html_()
+    assert fragment.index('id="problems"') < fragment.index("<table")
+    assert "N = 301 rows analysed of 301 read" in fragment
+
+
+def test_markdown_and_json_put_problems_first(heywood):
+    markdown = markdown_report(heywood)
+    first_section = markdown.split("\n## ")[1]
+    assert first_section.startswith(T.NOT_ADMISSIBLE)
+    out = heywood.to_dict()
+    assert list(out)[:2] == ["admissible", "problems"]
+    assert out["admissible"] is False
+    assert out["problems"][0]["kind"] == "negative residual variance"
+    assert out["problems"][0]["value"] == pytest.approx(-1.016, abs=1e-3)
+    assert out["problems"][0]["advice"]
+
+
+def test_tables_mark_the_affected_rows_in_place(heywood):
+    tables = {t.title.split(" (")[0]: t for t in T.estimate_tables(heywood)}
+    speed = tables["Factor speed"]
+    x9 = [k for k, row in enumerate(speed.rows) if row[0] == "x9"]
+    assert speed.flagged == tuple(x9)
+    assert speed.columns[-1] == "Problem"
+    assert "negative variance" in speed.rows[x9[0]][-1]
+    assert speed.rows[x9[0]][speed.columns.index("R²")] == "2.00"
+    assert "negative variance" in csv_table(speed)  # the mark reaches every format
+    assert tables["Factor visual"].flagged == ()
+
+
+def test_methods_paragraph_does_not_report_an_inadmissible_solution_as_a_good_fit(heywood, hs_data):
+    text = methods_paragraph(heywood)
+    assert "not admissible" in text and "negative residual variance of x9" in text
+    assert "guide values" not in text  # no judgement of fit for an impossible solution
+    assert "not admissible" not in methods_paragraph(cfa_tool.fit(PLAIN, hs_data))
+
+
+def test_compare_marks_the_inadmissible_model(tmp_path, hs_data):
+    data = tmp_path / "hs.csv"
+    hs_data.to_csv(data, index=False)
+    (tmp_path / "heywood.cfa").write_text(HEYWOOD)
+    (tmp_path / "plain.cfa").write_text(PLAIN)
+    out = tmp_path / "c.json"
+    proc = run("compare", str(tmp_path / "heywood.cfa"), str(tmp_path / "plain.cfa"), "--data", str(data),
+               "--json", str(out))
+    assert proc.returncode == 0, proc.stderr
+    text = proc.stdout
+    assert text.index("solution of heywood is not admissible") < text.index("Fit of each model")
+    assert "lowest AIC and BIC belong to heywood" in text
+    models = {m["name"]: m for m in json.loads(out.read_text())["models"]}
+    assert models["heywood"]["admissible"] is False and models["plain"]["admissible"] is True
+    assert models["heywood"]["problems"][0]["kind"] == "negative residual variance"
+
+
+def test_a_negative_variance_by_construction():
+    # Three indicators with r12 = r13 = .8 and r23 = .5 force a standardized loading of
+    # sqrt(.8 * .8 / .5) = 1.13 for y1 (the one-factor solution of three correlations is exact), hence a
+    # residual variance of 1 - .8 * .8 / .5 = -.28: a Heywood case by construction.
+    import pandas as pd
+
+    corr = np.array([[1.0, 0.8, 0.8], [0.8, 1.0, 0.5], [0.8, 0.5, 1.0]])
+    rng = np.random.default_rng(3)
+    z = rng.standard_normal((500, 3))
+    z = (z - z.mean(0)) @ np.linalg.inv(np.linalg.cholesky(np.cov(z.T, bias=True))).T
+    data = pd.DataFrame(z @ np.linalg.cholesky(corr).T, columns=["y1", "y2", "y3"])
+    result = cfa_tool.fit("factor f: y1, y2, y3\n", data)
+    assert not result.admissible
+    (problem,) = result.problems
+    assert problem.kind is ProblemKind.NEGATIVE_RESIDUAL_VARIANCE
+    assert problem.value == pytest.approx(1.0 - 0.8 * 0.8 / 0.5, abs=1e-6)

@@ -1,0 +1,73 @@
+"""What the comparison report shows: robust statistics beside the normal-theory ones, and a reason in place
+of a number when a scaled difference cannot be computed."""
+
+from __future__ import annotations
+
+import io
+from types import SimpleNamespace
+
+import pytest
+from rich.console import Console
+
+from cfa_tool.reporting.workflow_text import render_comparison
+from cfa_tool.workflows.compare import compare
+from cfa_tool.workflows.nesting import scaled_difference_tests
+
+THREE = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+
+
+def _text(comparison) -> str:
+    buffer = io.StringIO()
+    render_comparison(comparison, Console(file=buffer, width=80, no_color=True))
+    return buffer.getvalue()
+
+
+def test_robust_statistics_appear_in_the_comparison_table(hs_data):
+    result = compare([THREE, THREE + "covary x7, x8\n"], hs_data, test="satorra-bentler")
+    text = _text(result)
+    for label in ("Scaled chi-square", "scaling factor", "Robust CFI", "Robust TLI", "Robust RMSEA"):
+        assert label in text
+    first = result.results[0].robust
+    assert f"{first.chi_square_scaled:.3f}" in text
+    assert max(len(line) for line in text.splitlines()) <= 80
+
+
+def test_a_scaled_difference_that_cannot_be_computed_says_why():
+    # Satorra & Bentler (2001): c_d = (df0 c0 - df1 c1) / (df0 - df1); with c0 = 1.0, df0 = 10, c1 = 2.0, df1 = 8
+    # c_d = (10 - 16) / 2 = -3 < 0, so the 2001 statistic does not exist
+    fit = lambda chi, df: SimpleNamespace(chi_square=chi, df=df)  # noqa: E731
+    robust = lambda c: SimpleNamespace(scaling_factor=c, cfi_robust=0.9, rmsea_robust=0.05)  # noqa: E731
+    restricted = SimpleNamespace(fit=fit(30.0, 10), robust=robust(1.0))
+    general = SimpleNamespace(fit=fit(20.0, 8), robust=robust(2.0))
+    first, second = scaled_difference_tests(restricted, general, "a", "b", general_scaling_at_restricted=1.1)
+    assert first.not_computed.startswith("its scaling correction is not positive (-3.000)")
+    assert first.to_dict()["not_computed"] == first.not_computed
+    # the 2010 version with c1 = 1.1: c_d = (10 - 8.8) / 2 = .6, T_d = 10 / .6
+    assert second.not_computed == "" and second.chi_square_difference == pytest.approx(10 / 0.6)
+
+
+def test_standardized_expected_change_of_a_residual_covariance_is_a_residual_correlation(hs_data):
+    import cfa_tool
+    from cfa_tool.reporting import tables as T
+
+    result = cfa_tool.fit(THREE, hs_data)
+    theta = {r.variables[0]: r.estimate for r in result.estimates if r.kind == "residual_variance"}
+    m = next(m for m in result.modification_indices if m.kind == "residual_covariance" and m.variables == ("x7", "x8"))
+    # the expected change over the two residual standard deviations (correlation metric)
+    assert m.standardized_expected_change == pytest.approx(m.expected_change / (theta["x7"] * theta["x8"]) ** 0.5,
+                                                           rel=1e-12)
+    assert "residual correlation metric" in T.modification_table(result).note
+
+
+def test_ordinal_comparison_counts_free_parameters_as_fit_does():
+    import cfa_tool
+    from cfa_tool.workflows.simulation import simulate
+
+    two = "factor a: y1, y2, y3, y4\nfactor b: y5, y6, y7, y8\n"
+    one = "factor a: y1, y2, y3, y4, y5, y6, y7, y8\n"
+    data = simulate(two, 800, seed=3, categories=4).frame
+    comparison = compare([one, two], data, ordinal="all")
+    for model, result in zip((one, two), comparison.results):
+        alone = cfa_tool.fit(model, data, ordinal="all")
+        assert result.fit.n_free_parameters == alone.fit.n_free_parameters
+        assert result.fit.df == alone.fit.df

@@ -1,0 +1,165 @@
+"""``cfa-tool explore`` end to end on the Holzinger & Swineford (1939) data, x1..x9 (tests/datasets).
+
+Check values and their sources:
+* three factors: the structure Holzinger & Swineford (1939) designed the tests for (visual x1-x3,
+  textual x4-x6, speed x7-x9), the model fitted to these data throughout the literature (e.g. Joreskog
+  1969; recalled from memory);
+* the eigenvalues of the correlation matrix against numpy.linalg.eigvalsh (a general-purpose library);
+* the degrees of freedom of the draft model's fit by the counting rule (Bollen 1989): p(p + 1)/2 moments
+  minus the free parameters;
+* the split halves against the data file's own rows.
+"""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from cfa_tool.cli import main
+from cfa_tool.errors import OptionError
+from tests.conftest import DATASETS
+
+HS_FILE = DATASETS / "holzinger_swineford_1939.csv"
+ITEMS = [f"x{i}" for i in range(1, 10)]
+
+
+def _run(argv, capsys):
+    code = main([str(a) for a in argv])
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+@pytest.fixture(scope="module")
+def hs_run(tmp_path_factory):
+    import contextlib
+    import io
+
+    folder = tmp_path_factory.mktemp("explore")
+    draft, js, html = folder / "draft.cfa", folder / "explore.json", folder / "explore.html"
+    text = io.StringIO()
+    with contextlib.redirect_stdout(text):
+        code = main(["explore", "--data", str(HS_FILE), "--items", "x1..x9", "--draft", str(draft), "--json", str(js),
+                     "--html", str(html)])
+    assert code == 0
+    return folder, draft, json.loads(js.read_text()), html.read_text(), text.getvalue()
+
+
+def test_the_recommendation_on_holzinger_swineford_is_reported_with_its_reasons(hs_run, hs_data):
+    _, _, result, _, text = hs_run
+    count = result["factor_count"]
+    assert count["recommended"] == 3  # Holzinger & Swineford (1939): three abilities
+    assert count["reasons"][0].startswith("Recommended: 3 factors")
+    rules = {r["rule"]: r["factors"] for r in count["rules"]}
+    in_recommendation = [r["factors"] for r in count["rules"] if r["in_recommendation"]]
+    assert sorted(in_recommendation)[1] == 3  # the middle value of the three combined rules
+    assert set(rules) >= {"parallel-analysis-components", "parallel-analysis-factors", "minimum-average-partial"}
+    assert "Rules for the number of factors often disagree in practice" in text
+    if len(set(v for v in rules.values() if v is not None)) > 1:
+        assert "The rules disagree about the number of factors." in count["reasons"]
+    R = np.corrcoef(hs_data[ITEMS].to_numpy(float), rowvar=False)
+    eigen = np.sort(np.linalg.eigvalsh(R))[::-1]  # numpy as an independent computation
+    np.testing.assert_allclose(count["parallel_analysis"]["component_eigenvalues"], eigen, atol=1e-10)
+    assert [f["factors"] for f in result["fits"]] == [1, 2, 3, 4, 5]  # 1 .. K + 2
+
+
+def test_pattern_loadings_follow_the_published_structure_and_small_ones_are_faint(hs_run):
+    _, _, result, html, _ = hs_run
+    pattern = np.array(result["solution"]["pattern"])
+    top = np.argmax(np.abs(pattern), axis=1)
+    # visual x1-x3, textual x4-x6, speed x7-x9 (Holzinger & Swineford 1939): each triple shares one factor
+    assert len({top[0], top[1], top[2]}) == 1 and len({top[3], top[4], top[5]}) == 1 and len({top[6], top[7], top[8]}) == 1
+    assert len({top[0], top[3], top[6]}) == 3
+    assert result["solution"]["oblique"] and result["solution"]["structure"] is not None
+    assert 'class="r faint"' in html and "<svg" in html and "Scree plot" in html
+    small = int((np.abs(pattern) < 0.30).sum()) + int((np.abs(np.array(result["solution"]["structure"])) < 0.30).sum())
+    assert html.count('class="r faint"') == small  # every small pattern and structure loading, and only those
+
+
+def test_the_draft_model_file_fits_with_the_fit_command(hs_run, capsys):
+    folder, draft, result, _, _ = hs_run
+    assert draft.read_text() == result["draft"]["text"]
+    code, out, err = _run(["fit", draft, "--data", HS_FILE, "--json", "-"], capsys)
+    assert code == 0, err
+    fitted = json.loads(out)
+    assert fitted["converged"]
+    placed = [p["item"] for p in result["draft"]["placements"] if p["placement"] == "on-factor"]
+    # counting rule (Bollen 1989): p(p + 1)/2 moments minus loadings (one per factor fixed), residual variances,
+    # factor variances and covariances
+    p, m = len(placed), 3
+    assert fitted["fit"]["df"] == p * (p + 1) // 2 - ((p - m) + p + m + m * (m - 1) // 2)
+    # x9 loads on two factors at .30 or more, so it is left for the researcher (as a comment)
+    assert "x9" not in placed and "#   x9:" in draft.read_text()
+    # the fit reports what it finds first (a two-item factor may give an inadmissible solution); nothing is hidden
+    assert fitted["admissible"] == (not any(q["inadmissible"] for q in fitted["problems"]))
+
+
+def test_split_halves_are_disjoint_and_both_are_reported(tmp_path, capsys):
+    js = tmp_path / "split.json"
+    code, text, err = _run(["explore", "--data", HS_FILE, "--items", "x1..x9", "--split", "11", "--json", js], capsys)
+    assert code == 0, err
+    split = json.loads(js.read_text())["split"]
+    first, second = set(split["exploration_rows"]), set(split["confirmation_rows"])
+    assert not first & second
+    assert first | second == set(range(1, 302))  # every data row of the file (301 pupils)
+    assert abs(len(first) - len(second)) <= 1
+    assert split["confirmation_half_used_to_choose_the_model"] is False
+    assert json.loads(js.read_text())["data"]["rows_used"] == len(first)
+    assert split["confirmation"]["n_obs"] == len(second)
+    assert "the confirmation half (150 rows) was not used to choose the model" in " ".join(text.split())
+    assert "Confirmation half: the draft model fitted" in text
+    code2, _, _ = _run(["explore", "--data", HS_FILE, "--items", "x1..x9", "--split", "11", "--json", tmp_path / "b.json"],
+                       capsys)
+    assert json.loads((tmp_path / "b.json").read_text())["split"]["exploration_rows"] == split["exploration_rows"]
+
+
+def test_a_number_of_factors_given_is_used_and_the_evidence_still_shown(tmp_path, capsys):
+    js = tmp_path / "two.json"
+    code, _, err = _run(["explore", "--data", HS_FILE, "--items", "x1..x9", "--factors", "2", "--rotation", "varimax",
+                         "--json", js], capsys)
+    assert code == 0, err
+    result = json.loads(js.read_text())
+    assert result["factor_count"]["factors_used"] == 2 and result["factor_count"]["recommended"] == 3
+    assert any("as asked, not the 3 recommended" in r for r in result["factor_count"]["reasons"])
+    assert not result["solution"]["oblique"] and result["solution"]["structure"] is None
+    assert [f["factors"] for f in result["fits"]][:4] == [1, 2, 3, 4]
+
+
+def test_the_draft_never_replaces_an_existing_file(tmp_path, capsys):
+    draft = tmp_path / "mine.cfa"
+    draft.write_text("factor f: x1, x2, x3\n")
+    code, _, err = _run(["explore", "--data", HS_FILE, "--items", "x1..x9", "--draft", draft], capsys)
+    assert code == 2 and "exists, and this output never replaces a file" in err
+    assert draft.read_text() == "factor f: x1, x2, x3\n"
+
+
+def test_python_entry_point(hs_data):
+    import dataclasses
+
+    import cfa_tool
+
+    result = cfa_tool.explore(hs_data, items=ITEMS, factors=3, rotation="geomin")
+    assert dataclasses.is_dataclass(result) and result.__dataclass_params__.frozen
+    assert result.factors == 3 and result.to_dict()["solution"]["rotation"] == "geomin"
+    assert "Pattern loadings" in result.summary() and "<svg" in result._repr_html_()
+    with pytest.raises(OptionError, match="target matrix"):
+        cfa_tool.explore(hs_data, items=ITEMS, rotation="target")
+    frame = pd.DataFrame(hs_data[ITEMS])
+    assert cfa_tool.explore(frame, factors=1).items == tuple(ITEMS)  # default: every column that holds numbers
+
+
+def test_a_heywood_case_comes_first_in_every_view(tmp_path, capsys):
+    # the 4-factor solution of these data has an item at its bound (the fit table of the 1 .. K + 2 solutions
+    # marks it; the uniqueness bound is the extraction's own)
+    js, html, md = tmp_path / "four.json", tmp_path / "four.html", tmp_path / "four.md"
+    code, text, err = _run(["explore", "--data", HS_FILE, "--items", "x1..x9", "--factors", "4", "--json", js,
+                            "--html", html, "--markdown", md], capsys)
+    assert code == 0, err
+    result = json.loads(js.read_text())
+    assert result["solution"]["at_bound"] and list(result)[2] == "problems"  # after the tool's name and version
+    assert any(p.startswith("Heywood case") for p in result["problems"])
+    assert text.lstrip().startswith("┏") or text.lstrip().startswith("╭")  # the boxed notice before anything
+    assert html.read_text().index('id="problems"') < html.read_text().index("<h1>")
+    assert md.read_text().startswith("## Check before interpreting this solution")

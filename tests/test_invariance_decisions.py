@@ -1,0 +1,132 @@
+"""Invariance decisions a researcher can act on: the decision rule named and chosen, the full-constraint
+test of every step beside its partial version, why a search stopped, and latent mean differences.
+
+Check values come from the simulation's own population (written below), not from the package."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from cfa_tool.errors import OptionError
+from cfa_tool.workflows.invariance import DecisionRule, invariance
+from tests.test_cli import run
+
+# population: two factors of three items, standardized loadings .8/.7/.6, factor correlation .3
+L = np.zeros((6, 2))
+L[:3, 0] = [0.8, 0.7, 0.6]
+L[3:, 1] = [0.8, 0.7, 0.6]
+PHI = np.array([[1.0, 0.3], [0.3, 1.0]])
+RESIDUAL_SD = np.sqrt(1 - (L ** 2).sum(1))
+MODEL = "factor f: y1, y2, y3\nfactor h: y4, y5, y6\n"
+
+
+def groups_data(seed: int, n: int = 500, groups: int = 2, shift: tuple[int, int] | None = None,
+                mean_last: tuple[float, float] = (0.0, 0.0)) -> pd.DataFrame:
+    """Normal data per group; the last group's factor means are ``mean_last`` and, with ``shift`` = (group,
+    item), that item's intercept is 0.5 higher in that group (a known non-invariant intercept)."""
+    rng = np.random.default_rng(seed)
+    frames = []
+    for k in range(groups):
+        mu = mean_last if k == groups - 1 else (0.0, 0.0)
+        eta = rng.multivariate_normal(mu, PHI, size=n)
+        x = eta @ L.T + rng.standard_normal((n, 6)) * RESIDUAL_SD
+        if shift is not None and shift[0] == k:
+            x[:, shift[1]] += 0.5
+        frame = pd.DataFrame(x, columns=[f"y{i + 1}" for i in range(6)])
+        frame["grp"] = f"g{k + 1}"
+        frames.append(frame)
+    return pd.concat(frames, ignore_index=True)
+
+
+def test_the_search_finds_a_known_noninvariant_intercept_and_latent_means_cover_the_population():
+    found = covered = 0
+    for seed in range(20):
+        result = invariance(MODEL, groups_data(100 + seed, shift=(1, 4), mean_last=(0.5, 0.0)), "grp", partial="auto")
+        found += [(f.kind, f.variables) for f in result.freed] == [("intercept", ("y5",))]
+        d = {x.factor: x for x in result.latent_differences}
+        # with y1 and y4 as markers the factor means are in the markers' metric: .5 x .8 = .4 for f, 0 for h
+        covered += (d["f"].ci95[0] <= 0.4 <= d["f"].ci95[1]) + (d["h"].ci95[0] <= 0.0 <= d["h"].ci95[1])
+    assert found >= 18  # the issue's 90% of replications
+    assert covered >= 34  # 95% intervals: at least 34 of 40 (a binomial lower bound well below nominal)
+
+
+def test_exact_invariance_frees_nothing_under_the_change_in_fit_rule():
+    clean = sum(not invariance(MODEL, groups_data(200 + seed), "grp", partial="auto", decide_by="fit-change").freed
+                for seed in range(20))
+    assert clean >= 18
+
+
+def test_five_groups_name_the_group_of_a_freed_parameter():
+    result = invariance(MODEL, groups_data(7, n=400, groups=5, shift=(4, 4)), "grp", partial="auto")
+    assert [(f.kind, f.variables, f.group) for f in result.freed] == [("intercept", ("y5",), "g5")]
+    scalar = next(s for s in result.steps if s.level == "scalar")
+    assert scalar.partial and scalar.full_holds is False and scalar.holds
+    assert scalar.full_test.df_difference > scalar.versus_previous.df_difference
+
+
+def test_partial_step_keeps_its_full_constraint_test_and_the_reason_the_search_stopped(hs_data):
+    result = invariance("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n", hs_data,
+                        "school", partial="auto")
+    scalar = next(s for s in result.steps if s.level == "scalar")
+    assert scalar.partial and not scalar.full_holds and scalar.holds and scalar.stopped == "the step holds"
+    out = result.to_dict()
+    step = next(s for s in out["steps"] if s["level"] == "scalar")
+    assert step["partial"] is True and step["with_every_equality"]["holds"] is False
+    assert {f["variables"][0] for f in step["freed"]} == {f.variables[0] for f in scalar.freed}
+    assert out["decision_rule"]["name"] == "difference-test"
+    assert {d["factor"] for d in out["latent_differences"]} == {"visual", "textual", "speed"}
+    assert "partially invariant scalar model" in out["latent_differences_note"]
+
+
+def test_no_latent_means_when_scalar_invariance_fails():
+    result = invariance(MODEL, groups_data(3, shift=(1, 4)), "grp", partial="none")
+    assert not next(s for s in result.steps if s.level == "scalar").holds
+    assert result.latent_differences == () and "not on a common scale" in result.latent_note
+
+
+def test_decision_rule_is_checked_and_named(tmp_path):
+    with pytest.raises(OptionError, match="decision rule must be one of difference-test, fit-change, both"):
+        invariance(MODEL, groups_data(1), "grp", decide_by="cfi")
+    data = tmp_path / "d.csv"
+    groups_data(1).to_csv(data, index=False)
+    (tmp_path / "m.cfa").write_text(MODEL)
+    out = tmp_path / "r.json"
+    proc = run("invariance", str(tmp_path / "m.cfa"), "--data", str(data), "--group", "grp", "--decide-by", "both",
+               "--json", str(out))
+    assert proc.returncode == 0, proc.stderr
+    assert "judged by " + DecisionRule.BOTH.description.replace("alpha", ".05") in " ".join(proc.stdout.split())
+    assert json.loads(out.read_text())["decision_rule"]["name"] == "both"
+    bad = run("invariance", str(tmp_path / "m.cfa"), "--data", str(data), "--group", "grp", "--decide-by", "cfi")
+    assert bad.returncode == 2 and "Traceback" not in bad.stderr
+
+
+def test_alpha_with_the_change_in_fit_rule_and_ordinal_change_in_fit_are_errors():
+    with pytest.raises(OptionError, match="which the fit-change rule does not use"):
+        invariance(MODEL, groups_data(1), "grp", decide_by="fit-change", alpha=0.01)
+    data = groups_data(1)
+    for item in [f"y{i}" for i in range(1, 7)]:
+        data[item] = pd.cut(data[item], [-np.inf, -0.5, 0.5, np.inf], labels=False) + 1
+    with pytest.raises(OptionError, match="judge the steps by the difference tests"):
+        invariance(MODEL, data, "grp", ordinal="all", decide_by="both")
+
+
+def test_no_latent_mean_for_a_factor_with_fewer_than_two_equal_items():
+    # y5 0.8 higher and y6 0.8 lower in the second group: the search frees two of h's three intercepts
+    data = groups_data(5, shift=(1, 4))
+    data.loc[data["grp"] == "g2", "y5"] += 0.3
+    data.loc[data["grp"] == "g2", "y6"] -= 0.8
+    result = invariance(MODEL, data, "grp", partial="auto")
+    assert sorted(f.variables[0] for f in result.freed) == ["y5", "y6"]
+    assert {d.factor for d in result.latent_differences} == {"f"}
+    assert "None for h: fewer than two of its items keep equal loadings and intercepts" in result.latent_note
+
+
+def test_a_configural_model_that_does_not_converge_is_an_estimation_error(hs_data):
+    from cfa_tool.errors import EstimationError
+
+    with pytest.raises(EstimationError, match="the configural model did not converge"):
+        invariance("factor f: x1, x2, x3\n", hs_data, "school", max_iterations=1)

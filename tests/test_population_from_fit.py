@@ -1,0 +1,74 @@
+"""Planning from a fitted model: the population of simulate and power-simulation taken from an earlier fit,
+so that its signs and residual variances carry over (the check values are the fit's own estimates)."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+
+import cfa_tool
+from cfa_tool.errors import OptionError
+from cfa_tool.workflows.montecarlo import monte_carlo_power
+from cfa_tool.workflows.simulation import population_from_spec, simulate
+from tests.test_cli import run
+
+THREE = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+
+
+@pytest.fixture(scope="module")
+def fitted(hs_data):
+    return cfa_tool.fit(THREE, hs_data)
+
+
+def test_population_reproduces_the_fit_estimates(fitted):
+    spec = cfa_tool.parse_model(THREE)
+    for source in (fitted, fitted.to_dict(), json.loads(json.dumps(fitted.to_dict()))):
+        population = population_from_spec(spec, source)
+        values = {(v["kind"], tuple(v["variables"])): v["value"] for v in population.values()}
+        for row in fitted.estimates:
+            if row.free:
+                assert values[(row.kind, row.variables)] == pytest.approx(row.estimate, abs=1e-10)
+        assert np.allclose(population.sigma, fitted.implied_covariance, atol=1e-10)
+        assert population.defaulted == ()
+
+
+def test_power_simulation_and_simulate_use_it(fitted):
+    result = monte_carlo_power(THREE, 400, replications=4, seed=3, population=fitted)
+    truth = {p.label: p.population for p in result.parameters}
+    row = next(r for r in fitted.estimates if r.kind == "loading" and r.variables == ("visual", "x2"))
+    assert truth["loading(visual, x2)"] == pytest.approx(row.estimate, abs=1e-10)
+    assert result.defaulted == ()
+    data = simulate(THREE, 200_000, seed=2, population=fitted).frame
+    # the simulated covariance approaches the fitted implied covariance (Monte Carlo error at N = 200,000)
+    assert np.abs(np.cov(data.to_numpy().T, bias=True) - fitted.implied_covariance).max() < 0.05
+
+
+def test_a_different_model_or_an_impossible_fit_is_refused(fitted, hs_data):
+    with pytest.raises(OptionError, match="fixes it at 1"):
+        population_from_spec(cfa_tool.parse_model("scale latent by variance\n" + THREE), fitted)
+    with pytest.raises(OptionError, match="no estimate of loading\\(visual, x4\\)"):
+        population_from_spec(cfa_tool.parse_model(THREE.replace("x1, x2, x3", "x1, x2, x3, x4")), fitted)
+    heywood = cfa_tool.fit(THREE + "covary x7, x8\ncovary x8, x9\n", hs_data)
+    with pytest.raises(OptionError, match="not admissible"):
+        population_from_spec(cfa_tool.parse_model(THREE + "covary x7, x8\ncovary x8, x9\n"), heywood)
+
+
+def test_command_line(tmp_path, fitted):
+    model = tmp_path / "m.cfa"
+    model.write_text(THREE)
+    result = tmp_path / "fit.json"
+    result.write_text(json.dumps(fitted.to_dict()))
+    out = tmp_path / "sim.csv"
+    proc = run("simulate", str(model), "--n", "50", "--output", str(out), "--population-from", str(result),
+               "--json", str(tmp_path / "pop.json"))
+    assert proc.returncode == 0, proc.stderr
+    population = json.loads((tmp_path / "pop.json").read_text())["population"]
+    assert not any(v["default"] for v in population)
+    bad = tmp_path / "bad.json"
+    bad.write_text("{not json")
+    proc = run("simulate", str(model), "--n", "50", "--output", str(out), "--population-from", str(bad))
+    assert proc.returncode == 2 and "not a result written by 'cfa-tool fit --json'" in proc.stderr
+    proc = run("simulate", str(model), "--n", "50", "--output", str(result), "--population-from", str(result))
+    assert proc.returncode == 2 and json.loads(result.read_text())["estimates"]  # the input is never replaced

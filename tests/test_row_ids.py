@@ -1,0 +1,59 @@
+"""Rows named by an id column (--id) or by the file's row names, in the case diagnostics of a fit.
+
+The expected ids are read from the data file itself (Holzinger & Swineford 1939, tests/datasets):
+its first header cell is empty (a row-name column "1", "2", ...) and its column 'id' holds the
+pupils' numbers, which skip values (row 105 is pupil 114), so a wrong row-to-id mapping shows.
+"""
+
+from __future__ import annotations
+
+import json
+
+import pandas as pd
+
+from cfa_tool.cli import main
+from cfa_tool.data.readers import read_data
+from tests.conftest import DATASETS, THREE_FACTORS
+
+HS_FILE = DATASETS / "holzinger_swineford_1939.csv"
+
+
+def test_the_row_name_column_is_kept_as_text_beside_the_data():
+    loaded = read_data(HS_FILE)
+    raw = pd.read_csv(HS_FILE, index_col=0)
+    assert "" not in loaded.frame.columns and "id" in loaded.frame.columns
+    assert loaded.row_names.tolist() == [str(v) for v in raw.index]  # the file's first column
+    assert loaded.row_names.index.equals(loaded.frame.index)
+
+
+def _cases(tmp_path, capsys, *extra):
+    model = tmp_path / "hs.cfa"
+    model.write_text(THREE_FACTORS)
+    code = main(["fit", str(model), "--data", str(HS_FILE), "--json", "-", *extra])
+    out = capsys.readouterr()
+    assert code == 0, out.err
+    return json.loads(out.out)["diagnostics"]["influential_cases"]
+
+
+def test_fit_names_the_case_diagnostics_by_the_id_column(tmp_path, capsys):
+    raw = pd.read_csv(HS_FILE, index_col=0)
+    cases = _cases(tmp_path, capsys, "--id", "id")
+    assert cases
+    for case in cases:
+        # data row k is the k-th row after the header; its id is that row's value in the 'id' column of the file
+        assert case["id"] == str(raw["id"].iloc[case["row"] - 1])
+    assert any(case["id"] != str(case["row"]) for case in cases)  # the ids are not the row numbers
+
+
+def test_without_id_column_the_row_names_name_the_cases(tmp_path, capsys):
+    raw = pd.read_csv(HS_FILE, index_col=0)
+    for case in _cases(tmp_path, capsys):
+        assert case["id"] == str(raw.index[case["row"] - 1])
+
+
+def test_a_filtered_fit_keeps_the_ids_of_the_rows_it_analysed(tmp_path, capsys):
+    raw = pd.read_csv(HS_FILE, index_col=0)
+    cases = _cases(tmp_path, capsys, "--id", "id", "--keep", "school = Grant-White")
+    for case in cases:
+        assert raw["school"].iloc[case["row"] - 1] == "Grant-White"
+        assert case["id"] == str(raw["id"].iloc[case["row"] - 1])

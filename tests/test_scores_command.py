@@ -1,0 +1,261 @@
+"""``cfa-tool scores`` end to end on the Holzinger & Swineford (1939) data (tests/datasets).
+
+Check values and their sources:
+* regression scores equal semopy's ``predict_factors`` (semopy as an independent implementation; see
+  tests/test_scoring_against_semopy.py for why the two compare directly), tolerance 1e-6 from issue 16;
+* rows with gaps: the conditional normal mean of the factors given the answered items,
+  E[eta | x_o] = Phi L_o' Sigma_oo^-1 (x_o - mu_o) (Anderson 2003, theorem 2.5.1), computed here with
+  numpy from the estimates the command writes to its JSON;
+* posterior-mean scores of ordinal items average to the factor mean (law of iterated expectations,
+  E[E[eta | y]] = E[eta]), within four standard errors of a mean;
+* the HS id column and row names are read from the data file itself.
+"""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from cfa_tool.cli import main
+from tests.conftest import DATASETS, THREE_FACTORS
+
+HS_FILE = DATASETS / "holzinger_swineford_1939.csv"
+ITEMS = [f"x{i}" for i in range(1, 10)]
+FACTORS = ["visual", "textual", "speed"]
+
+
+def _run(argv, capsys):
+    code = main([str(a) for a in argv])
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+@pytest.fixture()
+def model_file(tmp_path):
+    path = tmp_path / "hs.cfa"
+    path.write_text(THREE_FACTORS)
+    return path
+
+
+def test_regression_scores_written_by_the_command_equal_semopy_predictions(tmp_path, model_file, hs_data, capsys):
+    import semopy
+
+    out = tmp_path / "scores.csv"
+    code, text, err = _run(["scores", model_file, "--data", HS_FILE, "--output", out], capsys)
+    assert code == 0, err
+    ours = pd.read_csv(out)
+    theirs = semopy.Model("visual =~ x1 + x2 + x3\ntextual =~ x4 + x5 + x6\nspeed =~ x7 + x8 + x9")
+    theirs.fit(hs_data, solver="trust-constr")
+    predicted = theirs.predict_factors(hs_data)[FACTORS].to_numpy()
+    columns = [f"{f}_regression" for f in FACTORS]
+    np.testing.assert_allclose(ours[columns].to_numpy(), predicted, rtol=0, atol=1e-6)  # issue 16: 1e-6
+    assert "Quality of the scores" in text and "Keyed sum scores" in text
+
+
+def test_row_order_and_the_id_column_are_kept(tmp_path, model_file, capsys):
+    raw = pd.read_csv(HS_FILE, index_col=0)
+    out = tmp_path / "scores.csv"
+    assert _run(["scores", model_file, "--data", HS_FILE, "--output", out, "--id", "id"], capsys)[0] == 0
+    written = pd.read_csv(out, dtype={"id": str})
+    assert list(written.columns[:1]) == ["id"] and len(written) == len(raw)
+    assert written["id"].tolist() == [str(v) for v in raw["id"]]  # the file's id column, in the file's order
+    out2 = tmp_path / "named.csv"
+    assert _run(["scores", model_file, "--data", HS_FILE, "--output", out2], capsys)[0] == 0
+    named = pd.read_csv(out2, dtype={"row_name": str})
+    assert named.columns[0] == "row_name" and named["row_name"].tolist() == [str(v) for v in raw.index]
+    np.testing.assert_array_equal(named.iloc[:, 1:].to_numpy(), written.iloc[:, 1:].to_numpy())
+
+
+def _estimates(result: dict) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Loadings, factor covariance, residual covariance and intercepts from the fit in the JSON."""
+    L, phi, theta, nu = np.zeros((9, 3)), np.zeros((3, 3)), np.zeros((9, 9)), np.zeros(9)
+    for row in result["fit"]["estimates"]:
+        v, e = row["variables"], row["estimate"]
+        if row["kind"] == "loading":
+            L[ITEMS.index(v[1]), FACTORS.index(v[0])] = e
+        elif row["kind"] == "factor_variance":
+            phi[FACTORS.index(v[0]), FACTORS.index(v[0])] = e
+        elif row["kind"] == "factor_covariance":
+            i, j = FACTORS.index(v[0]), FACTORS.index(v[1])
+            phi[i, j] = phi[j, i] = e
+        elif row["kind"] == "residual_variance":
+            theta[ITEMS.index(v[0]), ITEMS.index(v[0])] = e
+        elif row["kind"] == "intercept":
+            nu[ITEMS.index(v[0])] = e
+    return L, phi, theta, nu
+
+
+def test_rows_with_gaps_are_scored_from_their_answers_and_empty_rows_are_kept_and_counted(tmp_path, model_file, capsys):
+    raw = pd.read_csv(HS_FILE, index_col=0)
+    rng = np.random.default_rng(16)
+    gaps = raw.copy()
+    values = gaps[ITEMS].to_numpy(float).copy()
+    values[rng.random(values.shape) < 0.1] = np.nan
+    values[5] = np.nan  # a row without any answer
+    values[7, :3] = np.nan  # a row without the visual items
+    gaps[ITEMS] = values
+    data = tmp_path / "gaps.csv"
+    gaps.to_csv(data)
+    out, js = tmp_path / "scores.csv", tmp_path / "scores.json"
+    code, text, err = _run(["scores", model_file, "--data", data, "--output", out, "--json", js], capsys)
+    assert code == 0, err
+    result = json.loads(js.read_text())
+    written = pd.read_csv(out)
+    assert len(written) == len(raw)
+    scores = written[[f"{f}_regression" for f in FACTORS]].to_numpy()
+    assert np.isnan(scores[5]).all()
+    assert [u for u in result["unscored"] if u["reason"] == "no answers on the model's items"][0]["rows"]["visual"] == 1
+    assert any("answered none of the items of visual" in n for n in result["notes"])
+    L, phi, theta, nu = _estimates(result)  # full-information fit: intercepts estimated, factor means 0
+    sigma = L @ phi @ L.T + theta
+    checked = 0
+    for i in np.flatnonzero(np.isnan(values).any(axis=1) & ~np.isnan(values).all(axis=1)):
+        o = ~np.isnan(values[i])
+        expected = phi @ L[o].T @ np.linalg.solve(sigma[np.ix_(o, o)], values[i, o] - nu[o])  # Anderson (2003)
+        np.testing.assert_allclose(scores[i], expected, atol=1e-6)  # the JSON's estimates carry full precision
+        checked += 1
+    assert checked > 50
+
+
+def test_filtered_rows_stay_in_place_with_empty_cells(tmp_path, model_file, capsys):
+    raw = pd.read_csv(HS_FILE, index_col=0)
+    out, js = tmp_path / "scores.csv", tmp_path / "scores.json"
+    code, _, err = _run(["scores", model_file, "--data", HS_FILE, "--output", out, "--json", js, "--keep",
+                         "school = Pasteur"], capsys)
+    assert code == 0, err
+    written = pd.read_csv(out)
+    left_out = (raw["school"] != "Pasteur").to_numpy()
+    assert len(written) == len(raw)
+    assert written.loc[left_out, "visual_regression"].isna().all()
+    assert written.loc[~left_out, "visual_regression"].notna().all()
+    reasons = {u["reason"]: u["rows"]["visual"] for u in json.loads(js.read_text())["unscored"]}
+    assert reasons == {"left out by a row filter (--keep)": int(left_out.sum())}
+
+
+def test_an_inadmissible_solution_writes_no_scores_and_exits_3(tmp_path, capsys):
+    # the Heywood case of tests/test_admissibility.py: a negative residual variance of x9
+    model = tmp_path / "heywood.cfa"
+    model.write_text("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+                     "covary x7, x8\ncovary x8, x9\n")
+    out = tmp_path / "scores.csv"
+    code, _, err = _run(["scores", model, "--data", HS_FILE, "--output", out], capsys)
+    assert code == 3
+    assert len(err.strip().splitlines()) == 1 and "not admissible" in err and "x9" in err
+    assert not out.exists()
+
+
+def test_quality_in_the_json_and_the_caution_below_80(tmp_path, model_file, capsys):
+    out, js = tmp_path / "scores.csv", tmp_path / "scores.json"
+    code, text, _ = _run(["scores", model_file, "--data", HS_FILE, "--output", out, "--json", js,
+                          "--keep", "school = Pasteur", "--method", "regression,bartlett,correlation-preserving"], capsys)
+    assert code == 0
+    result = json.loads(js.read_text())
+    quality = result["quality"][0]
+    rho = dict(zip(quality["factors"], quality["determinacy"]))
+    # determinacy is the validity of the regression scores (Grice 2001): the same number two ways
+    regression = next(m for m in quality["methods"] if m["method"] == "regression")
+    assert regression["validity"] == pytest.approx(quality["determinacy"], abs=1e-10)
+    low = [f for f, r in rho.items() if r < 0.80]  # .80: common practice, no single source
+    assert result["low_determinacy"] == low
+    for name in low:
+        assert f"The determinacy of {name}" in text
+    # correlation-preserving scores keep the factors' correlations (ten Berge et al. 1999)
+    preserving = next(m for m in quality["methods"] if m["method"] == "correlation-preserving")
+    np.testing.assert_allclose(preserving["score_correlations"], quality["factor_correlations"], atol=1e-8)
+    assert [s["factor"] for s in quality["sums"]] == FACTORS
+    assert "decisions about individuals" in text
+
+
+def test_ordinal_items_get_posterior_means_and_standard_deviations(tmp_path, capsys):
+    rng = np.random.default_rng(17)
+    n = 1500
+    eta = rng.normal(size=n)
+    lam = np.array([0.8, 0.7, 0.6, 0.75])
+    latent = np.outer(eta, lam) + rng.normal(size=(n, 4)) * np.sqrt(1 - lam**2)
+    frame = pd.DataFrame(np.searchsorted([-1.0, 0.0, 1.0], latent) + 1, columns=["q1", "q2", "q3", "q4"])
+    data = tmp_path / "ordinal.csv"
+    frame.to_csv(data, index=False)
+    model = tmp_path / "one.cfa"
+    model.write_text("factor f: q1..q4\n")
+    out = tmp_path / "scores.csv"
+    code, text, err = _run(["scores", model, "--data", data, "--output", out, "--ordinal", "all"], capsys)
+    assert code == 0, err
+    written = pd.read_csv(out)
+    assert list(written.columns) == ["f_posterior_mean", "f_posterior_sd"]
+    s = written["f_posterior_mean"]
+    assert abs(s.mean()) < 4 * s.std() / np.sqrt(n)  # E[EAP] = the factor mean, 0 here
+    assert (written["f_posterior_sd"] > 0).all()
+    code, _, err = _run(["scores", model, "--data", data, "--output", out, "--ordinal", "all", "--method", "bartlett"],
+                        capsys)
+    assert code == 2 and "cannot be chosen" in err
+
+
+def test_python_entry_point_with_groups(hs_data):
+    import dataclasses
+
+    import cfa_tool
+
+    result = cfa_tool.scores(THREE_FACTORS, hs_data, group="school", methods="bartlett", id_column="id")
+    assert dataclasses.is_dataclass(result) and result.__dataclass_params__.frozen
+    assert list(result.table.columns) == ["id"] + [f"{f}_bartlett" for f in FACTORS]
+    assert len(result.table) == len(hs_data) and not result.table.isna().any().any()
+    assert [q.group for q in result.quality] == ["Grant-White", "Pasteur"]  # one quality record per group
+    assert result.to_dict()["methods"] == ["bartlett"] and result.to_dict()["fit"]["group_column"] == "school"
+    assert "Quality of the scores (group Pasteur)" in result.summary()
+    assert "<table" in result._repr_html_()
+    # a configural fit (free intercepts, factor means 0) reproduces each group's item means, so each group's
+    # linear scores alpha + W'(x - mu) average to alpha = 0 in that group: each row used its own group's parameters
+    for label in ("Grant-White", "Pasteur"):
+        rows = (hs_data["school"] == label).to_numpy()
+        np.testing.assert_allclose(result.table.loc[rows, "visual_bartlett"].mean(), 0.0, atol=1e-8)
+
+
+def test_a_fit_scores_other_data_with_its_own_parameters(hs_data):
+    """Calibrate on the Grant-White pupils, score the Pasteur pupils: the regression scores are
+    Phi L' Sigma^-1 (x - m) with the calibration fit's Phi, L, Sigma = L Phi L' + Theta and m the calibration
+    rows' means (the saturated mean's ML estimate), computed here with numpy (Thurstone 1935)."""
+    import cfa_tool
+
+    calibration = hs_data[hs_data["school"] == "Grant-White"]
+    other = hs_data[hs_data["school"] == "Pasteur"]
+    fit = cfa_tool.fit(THREE_FACTORS, calibration)
+    scored = fit.scores(other, id_column="id")
+    assert scored.table["id"].tolist() == [str(v) for v in other["id"]]
+    L, phi, theta, _ = _estimates({"fit": fit.to_dict()})
+    sigma = L @ phi @ L.T + theta
+    x = other[ITEMS].to_numpy(float) - calibration[ITEMS].to_numpy(float).mean(axis=0)
+    expected = x @ np.linalg.solve(sigma, L @ phi)
+    np.testing.assert_allclose(scored.table[[f"{f}_regression" for f in FACTORS]].to_numpy(), expected, atol=1e-6)
+    # scored with its own fit, the calibration sample gets exactly what cfa_tool.scores writes
+    np.testing.assert_allclose(fit.scores(calibration).table.to_numpy(float),
+                               cfa_tool.scores(THREE_FACTORS, calibration).table.to_numpy(float), atol=1e-12)
+
+
+def test_scores_from_a_saved_fit_equal_those_of_the_fit_result(tmp_path, model_file, hs_data, capsys):
+    """fit --json on the Grant-White pupils, then scores --from-fit on the Pasteur pupils: the same numbers as the
+    fit result's own scores (tested above against the regression formula), read back from the JSON's estimates."""
+    import cfa_tool
+
+    calibration, other = tmp_path / "gw.csv", tmp_path / "pa.csv"
+    hs_data[hs_data["school"] == "Grant-White"].to_csv(calibration)
+    hs_data[hs_data["school"] == "Pasteur"].to_csv(other)
+    saved = tmp_path / "gw.json"
+    assert _run(["fit", model_file, "--data", calibration, "--json", saved], capsys)[0] == 0
+    out, js = tmp_path / "pa_scores.csv", tmp_path / "pa_scores.json"
+    code, text, err = _run(["scores", model_file, "--data", other, "--from-fit", saved, "--output", out, "--json", js,
+                            "--id", "id", "--method", "regression,bartlett"], capsys)
+    assert code == 0, err
+    written = pd.read_csv(out, dtype={"id": str})
+    expected = cfa_tool.fit(model_file, calibration).scores(other, id_column="id", methods=["regression", "bartlett"])
+    assert written["id"].tolist() == expected.table["id"].tolist()
+    np.testing.assert_allclose(written.iloc[:, 1:].to_numpy(), expected.table.iloc[:, 1:].to_numpy(float), atol=1e-9)
+    assert json.loads(js.read_text())["scored_data"] == str(other) and f"Scored data: {other}" in " ".join(text.split())
+    # a model other than the one fitted is refused, and nothing is written
+    other_model = tmp_path / "other.cfa"
+    other_model.write_text("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6, x9\nfactor speed: x7, x8\n")
+    code, _, err = _run(["scores", other_model, "--data", other, "--from-fit", saved, "--output", tmp_path / "no.csv"],
+                        capsys)
+    assert code == 2 and "not of the model" in err and not (tmp_path / "no.csv").exists()
