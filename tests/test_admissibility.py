@@ -154,21 +154,3 @@ def test_compare_marks_the_inadmissible_model(tmp_path, hs_data):
     models = {m["name"]: m for m in json.loads(out.read_text())["models"]}
     assert models["heywood"]["admissible"] is False and models["plain"]["admissible"] is True
     assert models["heywood"]["problems"][0]["kind"] == "negative residual variance"
-
-
-def test_a_negative_variance_by_construction():
-    # Three indicators with r12 = r13 = .8 and r23 = .5 force a standardized loading of
-    # sqrt(.8 * .8 / .5) = 1.13 for y1 (the one-factor solution of three correlations is exact), hence a
-    # residual variance of 1 - .8 * .8 / .5 = -.28: a Heywood case by construction.
-    import pandas as pd
-
-    corr = np.array([[1.0, 0.8, 0.8], [0.8, 1.0, 0.5], [0.8, 0.5, 1.0]])
-    rng = np.random.default_rng(3)
-    z = rng.standard_normal((500, 3))
-    z = (z - z.mean(0)) @ np.linalg.inv(np.linalg.cholesky(np.cov(z.T, bias=True))).T
-    data = pd.DataFrame(z @ np.linalg.cholesky(corr).T, columns=["y1", "y2", "y3"])
-    result = cfa_tool.fit("factor f: y1, y2, y3\n", data)
-    assert not result.admissible
-    (problem,) = result.problems
-    assert problem.kind is ProblemKind.NEGATIVE_RESIDUAL_VARIANCE
-    assert problem.value == pytest.approx(1.0 - 0.8 * 0.8 / 0.5, abs=1e-6)

@@ -65,6 +65,23 @@ def method_option(methods) -> tuple[ScoreMethod, ...]:
     return tuple(out)
 
 
+def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, errors: dict,
+                   with_errors: bool) -> tuple[str | None, dict[str, object]]:
+    """(name of the id column or None, the output's columns): the ids first, then each method's score of each
+    factor, with its standard error when asked for."""
+    columns: dict[str, object] = {}
+    id_name = None
+    if ids is not None:
+        id_name = id_column if id_column is not None else ROW_NAME_HEADER
+        columns[id_name] = ids.tolist()
+    for meth in chosen:
+        for f, name in enumerate(factors):
+            columns[column_name(name, meth)] = values[meth][:, f]
+            if with_errors:
+                columns[column_name(name, meth, "se")] = errors[meth][:, f]
+    return id_name, columns
+
+
 def column_name(factor: str, method: ScoreMethod, what: str = "") -> str:
     """Output column of a factor's score by a method: e.g. 'visual_regression', 'visual_regression_se'."""
     word = {ScoreMethod.EXPECTED_A_POSTERIORI: "posterior_mean"}.get(method, method.value.replace("-", "_"))
@@ -244,16 +261,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
             for meth in chosen:
                 counts[(RowLeftOut.NO_GROUP.value, meth.value)] = np.full(m, no_group)
 
-    columns: dict[str, object] = {}
-    id_name = None
-    if ids is not None:
-        id_name = id_column if id_column is not None else ROW_NAME_HEADER
-        columns[id_name] = ids.tolist()
-    for meth in chosen:
-        for f, name in enumerate(factors):
-            columns[column_name(name, meth)] = values[meth][:, f]
-            if standard_errors or ordinal_items:
-                columns[column_name(name, meth, "se")] = errors[meth][:, f]
+    id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors,
+                                      bool(standard_errors or ordinal_items))
     table = pd.DataFrame(columns)
     if id_name is not None and id_name in list(table.columns)[1:]:
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
@@ -365,16 +374,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
             for meth in chosen:
                 counts[(reason, meth.value)] = np.full(m, number)
     factors = models[0].factors
-    columns: dict[str, object] = {}
-    id_name = None
-    if ids is not None:
-        id_name = id_column if id_column is not None else ROW_NAME_HEADER
-        columns[id_name] = ids.tolist()
-    for meth in chosen:
-        for f, name in enumerate(factors):
-            columns[column_name(name, meth)] = values[meth][:, f]
-            if standard_errors:
-                columns[column_name(name, meth, "se")] = errors[meth][:, f]
+    id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, bool(standard_errors))
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names")
     notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                     f"{result.data.source}; the quality figures are those of that fit.")
