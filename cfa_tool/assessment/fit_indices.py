@@ -146,20 +146,24 @@ def tli_value(chi_square: float, df: int, base_chi: float, base_df: int) -> floa
     return float((base_ratio - chi_square / df) / (base_ratio - 1.0))
 
 
-def srmr_value(S: np.ndarray, sigma: np.ndarray) -> float:
-    """One group's SRMR: residuals of the correlation metric over i <= j (Bentler 1995); for a
-    correlation matrix S (ordinal items) the diagonal residuals are zero."""
+def srmr_value(S: np.ndarray, sigma: np.ndarray, correlations: bool = False) -> float:
+    """One group's SRMR: residuals of the correlation metric over i <= j (Bentler 1995); with
+    ``correlations`` (ordinal items: S a matrix of polychoric correlations, whose diagonal is 1 by
+    definition and carries no information) the mean is over the off-diagonal correlations i < j only."""
     inv_sd = 1.0 / np.sqrt(S.diagonal())
     resid = (S - sigma) * (inv_sd[:, None] * inv_sd)
     squares = resid * resid
-    p = len(S)  # the mean over i <= j: half the off-diagonal squares plus the diagonal ones
+    p = len(S)
+    if correlations:
+        return float(np.sqrt((squares.sum() - squares.diagonal().sum()) / (p * (p - 1)))) if p > 1 else 0.0
+    # the mean over i <= j: half the off-diagonal squares plus the diagonal ones
     return float(np.sqrt((squares.sum() + squares.diagonal().sum()) / (p * (p + 1))))
 
 
-def srmr(groups: list[tuple[np.ndarray, np.ndarray, int]]) -> tuple[float, list[float]]:
+def srmr(groups: list[tuple[np.ndarray, np.ndarray, int]], correlations: bool = False) -> tuple[float, list[float]]:
     """(overall SRMR, each group's) from each group's (S, Sigma, N_g): with groups, the group-size
-    weighted mean (common practice)."""
-    values = [srmr_value(S, sigma) for S, sigma, _ in groups]
+    weighted mean (common practice); ``correlations`` as for :func:`srmr_value`."""
+    values = [srmr_value(S, sigma, correlations) for S, sigma, _ in groups]
     n = sum(g[2] for g in groups)
     return float(sum(g[2] / n * v for g, v in zip(groups, values))), values
 

@@ -33,6 +33,8 @@ class AdjustedTest:
     mean_variance_df: float
     mean_variance_p: float
     scaling: float  # tr(U Gamma) / df
+    scale: float = float("nan")  # the scale-shifted statistic is scale * statistic + shift
+    shift: float = float("nan")
 
 
 def residual_weights(D: np.ndarray | None, weights: np.ndarray) -> np.ndarray:
@@ -65,7 +67,7 @@ def adjusted_statistics(statistic: float, df: float, U: np.ndarray, gamma: np.nd
     d_star = a1**2 / a2
     mv = statistic * d_star / a1
     return AdjustedTest(statistic, df, float(shifted), float(dist.chi2_sf(max(shifted, 0.0), df)), float(mv), float(d_star),
-                        float(dist.chi2_sf(mv, d_star)), a1 / df)
+                        float(dist.chi2_sf(mv, d_star)), a1 / df, float(shift_scale), float(df - shift_scale * a1))
 
 
 def robust_covariance(D: np.ndarray, weights: np.ndarray, gamma: np.ndarray, n_obs: int) -> np.ndarray:
@@ -84,4 +86,5 @@ def adjusted_fit(test: AdjustedTest, baseline: AdjustedTest, df: int, base_df: i
                      baseline_chi_square_scaled=baseline.scale_shifted,
                      cfi_robust=cfi_value(test.scale_shifted, df, baseline.scale_shifted, base_df),
                      tli_robust=tli_value(test.scale_shifted, df, baseline.scale_shifted, base_df),
-                     rmsea_robust=rmsea_value(test.scale_shifted, df, n_obs, groups), rmsea_robust_ci90=(low, high))
+                     rmsea_robust=rmsea_value(test.scale_shifted, df, n_obs, groups), rmsea_robust_ci90=(low, high),
+                     scale=test.scale, shift=test.shift)

@@ -45,10 +45,15 @@ class RobustFit:
     tli_robust: float
     rmsea_robust: float
     rmsea_robust_ci90: tuple[float, float]
+    # the scale-shifted form (Asparouhov & Muthen 2010): statistic = scale * chi-square + shift (None otherwise)
+    scale: float | None = None
+    shift: float | None = None
 
     def to_dict(self) -> dict:
         d = asdict(self)
         del d["test"]
+        if self.scale is None:
+            del d["scale"], d["shift"]
         d["rmsea_robust_ci90"] = list(self.rmsea_robust_ci90)
         return {"method": self.test.label, **d}
 

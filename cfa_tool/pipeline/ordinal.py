@@ -38,7 +38,8 @@ from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.pipeline.continuous import estimate_rows
-from cfa_tool.pipeline.results import DataSummary, FitResult, GroupResult, fit_result
+from cfa_tool.numerics import distributions as dist
+from cfa_tool.pipeline.results import DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
 ORDINAL_NOTE = ("With ordinal items the fit indices come from the scale-shifted adjusted statistic; they were developed for "
                 "continuous data and tend to look better with ordinal data at the same misfit, so read them with care.")
@@ -98,6 +99,27 @@ def ordinal_spec(spec: Spec) -> tuple[Spec, set[str]]:
                  if ("variance", (x,)) not in user_fixed)
     derived_items = {r.names[0] for r in refs}  # residual variances that follow from unit latent-response variances
     return dc_replace(spec, fixed=spec.fixed + ((ValueSetting(refs, 1.0),) if refs else ())), derived_items
+
+
+def _first_step_thresholds(moments, order: list[int]) -> tuple[EstimateRow, ...]:
+    """The thresholds of a one-group ordinal fit, estimated in its first step (Olsson 1979), as rows of the
+    estimates (on the latent response's scale, variance 1), with standard errors when the first step's
+    asymptotic covariance covers them."""
+    nan = float("nan")
+    gamma = moments.joint_gamma
+    position = np.cumsum([0] + [len(t) for t in moments.thresholds])
+    rows = []
+    for k in order:
+        for step, value in enumerate(np.asarray(moments.thresholds[k], dtype=float)):
+            se = nan
+            if gamma is not None and position[k] + step < len(gamma):
+                se = float(np.sqrt(max(gamma[position[k] + step, position[k] + step], 0.0) / moments.n_obs))
+            z = value / se if se > 0 else nan
+            p = float(2 * dist.norm_sf(abs(z))) if se > 0 else nan
+            ci = (value - 1.959963984540054 * se, value + 1.959963984540054 * se) if se > 0 else (nan, nan)
+            rows.append(EstimateRow("threshold", (moments.names[k], str(step + 1)), True, float(value), se, z, p, ci,
+                                    float(value), float(value), "first step"))
+    return tuple(rows)
 
 
 def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weighting.DIAGONAL) -> FitResult:
@@ -164,7 +186,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
         T_base = n * float(R[pairs] @ (weights * R[pairs]))
         test = adjusted_test(T, df, D, weights, gamma)
         base = adjusted_test(T_base, n_corr, None, weights, gamma)
-        fit = _least_squares_fit(T, df, T_base, n_corr, n, table.n_free, srmr([(R, sigma, n)])[0])
+        fit = _least_squares_fit(T, df, T_base, n_corr, n, table.n_free, srmr([(R, sigma, n)], correlations=True)[0])
         robust = adjusted_fit(test, base, df, n_corr, n)
         cands = candidate_entries(table, exogenous_factors(spec), 0)
         if cands and df > 0 and options.modification_indices:
@@ -176,7 +198,8 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
                                  options.max_iterations)
     derived = frozenset(e for e, par in enumerate(table.parameters)
                         if par.kind == "residual_variance" and par.variables[0] in derived_items)
-    estimates = estimate_rows(table, values, inference, std_all, std_lv, derived)
+    estimates = estimate_rows(table, values, inference, std_all, std_lv, derived) + _first_step_thresholds(moments,
+                                                                                                          order)
     factors, htmt = reliability(final, table.observed, table.latent, R, declared=spec.reverse_keyed or None,
                                 sum_scores=False, not_traits=spec.method_factors)
     if opt.converged:
@@ -360,7 +383,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
             sigma = mats[g].implied_covariance()
             sd = np.sqrt(np.diag(sigma))
             latent_correlations.append((moments[g].correlations, sigma / np.outer(sd, sd), moments[g].n_obs))
-        overall_srmr, srmrs = srmr(latent_correlations)
+        overall_srmr, srmrs = srmr(latent_correlations, correlations=True)
         test = adjusted_test(T, df, D, w, gamma)
         base = adjusted_test(T_base, base_df, D_base, w, gamma)
         fit = _least_squares_fit(T, df, T_base, base_df, n, table.n_free, overall_srmr, G)

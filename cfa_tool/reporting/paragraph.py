@@ -196,7 +196,9 @@ def _fit_sentence(result) -> str:
         r = result.robust
         rl, rh = r.rmsea_robust_ci90
         return (f"The {_test_phrase(r.test)} gave {CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
-                f"(scaling factor {r.scaling_factor:.3f}); robust CFI = {unit(r.cfi_robust)}, robust TLI = "
+                + (f"(scale {r.scale:.3f}, shift {r.shift:.3f}); robust CFI" if r.scale is not None else
+                   f"(scaling factor {r.scaling_factor:.3f}); robust CFI")
+                + f" = {unit(r.cfi_robust)}, robust TLI = "
                 f"{unit(r.tli_robust)}, robust RMSEA = {unit(r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], "
                 f"SRMR = {unit(f.srmr)}.")
     return (f"The model fit was {CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {unit(f.cfi)}, "

@@ -128,7 +128,7 @@ def fit_table(result) -> ReportTable:
         rows += [
             [f"Scaled chi-square ({r.test.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, p {p_phrase(r.p_value_scaled)}",
              "the test to read for these data"],
-            ["  scaling factor", num(r.scaling_factor), "1 under normality"],
+            _correction_row(r),
             ["Robust CFI / TLI", f"{unit(r.cfi_robust)} / {unit(r.tli_robust)}", ">= .95"],
             ["Robust RMSEA [90% interval]", f"{unit(r.rmsea_robust)} [{unit(rlow)}, {unit(rhigh)}]", "<= .06"],
         ]
@@ -137,8 +137,25 @@ def fit_table(result) -> ReportTable:
         rows += [["Log-likelihood", num(f.log_likelihood), ""],
                  ["AIC / BIC / adjusted BIC", f"{num(f.aic)} / {num(f.bic)} / {num(f.sabic)}", "lower is better"]]
     rows.append(["Free parameters", str(f.n_free_parameters), ""])
-    return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")], rows, _unusable(result) + GUIDE_NOTE,
+    note = _unusable(result) + GUIDE_NOTE + (" " + robust_definition(r) if r is not None else "")
+    return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")], rows, note,
                   values=(["Index", "Value", "df", "p", "90% lower", "90% upper"], _fit_values(result)))
+
+
+def _correction_row(r) -> list[str]:
+    """How the corrected statistic follows from the chi-square, so that a reader can reproduce it."""
+    if r.scale is not None:  # scale-shifted: T* = scale x T + shift
+        return ["  scale and shift", f"{num(r.scale)} and {num(r.shift)}", "statistic = chi-square x scale + shift"]
+    return ["  scaling factor", num(r.scaling_factor), "statistic = chi-square / factor; 1 under normality"]
+
+
+def robust_definition(r) -> str:
+    """Which definition the robust indices follow."""
+    if r.scale is not None:
+        return ("Robust CFI, TLI and RMSEA: the usual formulas applied to the scale-shifted statistics of the model and "
+                "of the baseline model (ordinal items); SRMR over the off-diagonal polychoric correlations.")
+    return ("Robust CFI, TLI and RMSEA: the population-corrected definitions of Brosseau-Liard, Savalei & Li (2012) "
+            "and Brosseau-Liard & Savalei (2014), not the indices of the scaled statistic.")
 
 
 def _fit_values(result) -> list[list]:
@@ -153,7 +170,8 @@ def _fit_values(result) -> list[list]:
     rows.append(["SRMR", f.srmr, nan, nan, nan, nan])
     if r is not None:
         rows += [[f"Scaled chi-square ({r.test.label})", r.chi_square_scaled, r.df, r.p_value_scaled, nan, nan],
-                 ["Scaling factor", r.scaling_factor, nan, nan, nan, nan],
+                 *([["Scale", r.scale, nan, nan, nan, nan], ["Shift", r.shift, nan, nan, nan, nan]]
+                   if r.scale is not None else [["Scaling factor", r.scaling_factor, nan, nan, nan, nan]]),
                  ["Robust CFI", r.cfi_robust, nan, nan, nan, nan], ["Robust TLI", r.tli_robust, nan, nan, nan, nan],
                  ["Robust RMSEA", r.rmsea_robust, nan, nan, *r.rmsea_robust_ci90]]
     rows.append(["Baseline (independence) chi-square", f.baseline_chi_square, f.baseline_df, nan, nan, nan])

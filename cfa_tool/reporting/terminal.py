@@ -74,6 +74,8 @@ def render(result, console: Console) -> None:
     if result.fit is not None and result.converged:
         console.print(rich_table(T.fit_table(result)))
         console.print(Text(GUIDE_NOTE, style="italic"))
+        if result.robust is not None:
+            console.print(Text(T.robust_definition(result.robust), style="italic"))
         for line in T.normality_lines(result):
             console.print(line)
         local = T.local_fit_line(result)

@@ -1,0 +1,64 @@
+"""What an ordinal fit's report says: the printed correction reproduces the printed statistic, the SRMR is over
+the off-diagonal correlations, the first step's thresholds are shown, the robust indices name their definition.
+Check values come from scipy's normal distribution and from the formulas written out here."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from scipy import stats
+
+import cfa_tool
+from cfa_tool.reporting import tables as T
+from cfa_tool.workflows.simulation import simulate
+
+MODEL = "factor a: y1, y2, y3, y4\nfactor b: y5, y6, y7, y8\n"
+
+
+@pytest.fixture(scope="module")
+def ordinal_fit():
+    data = simulate(MODEL, 800, seed=3, categories=4).frame
+    return cfa_tool.fit(MODEL, data, ordinal="all"), data
+
+
+def test_scale_and_shift_reproduce_the_statistic(ordinal_fit):
+    result, _ = ordinal_fit
+    r = result.robust
+    assert result.fit.chi_square * r.scale + r.shift == pytest.approx(r.chi_square_scaled, rel=1e-12)
+    out = result.to_dict()["robust"]
+    assert out["scale"] == pytest.approx(r.scale) and out["shift"] == pytest.approx(r.shift)
+    row = next(row for row in T.fit_table(result).rows if row[0].strip() == "scale and shift")
+    assert row[1] == f"{r.scale:.3f} and {r.shift:.3f}"
+    assert "scale-shifted statistics of the model and of the baseline" in T.fit_table(result).note
+
+
+def test_ordinal_srmr_is_over_the_off_diagonal_correlations(ordinal_fit):
+    result, _ = ordinal_fit
+    resid = result.groups[0].residual_correlations
+    below = resid[np.tril_indices(len(resid), -1)]
+    assert result.fit.srmr == pytest.approx(np.sqrt(np.mean(below ** 2)), rel=1e-12)
+
+
+def test_first_step_thresholds_are_reported(ordinal_fit):
+    result, data = ordinal_fit
+    rows = {r.variables: r for r in result.estimates if r.kind == "threshold"}
+    n = len(data)
+    for item in ("y1", "y8"):
+        shares = np.cumsum(data[item].value_counts(normalize=True).sort_index().to_numpy())[:-1]
+        for step, share in enumerate(shares, start=1):
+            row = rows[(item, str(step))]
+            t = stats.norm.ppf(share)
+            assert row.estimate == pytest.approx(t, abs=1e-10)
+            # delta method: var(t) = P(1 - P) / (N phi(t)^2)
+            assert row.se == pytest.approx(np.sqrt(share * (1 - share) / n) / stats.norm.pdf(t), rel=1e-6)
+    titles = [t.title for t in T.estimate_tables(result)]
+    assert any(title.startswith("Thresholds of ordinal items") for title in titles)
+
+
+def test_continuous_robust_indices_name_their_definition(hs_data):
+    result = cfa_tool.fit("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n", hs_data,
+                          test="satorra-bentler")
+    note = T.fit_table(result).note
+    assert "Brosseau-Liard, Savalei & Li (2012)" in note
+    row = next(row for row in T.fit_table(result).rows if row[0].strip() == "scaling factor")
+    assert float(row[1]) == pytest.approx(result.fit.chi_square / result.robust.chi_square_scaled, abs=5e-4)
