@@ -10,7 +10,19 @@ from __future__ import annotations
 from cfa_tool import views
 from cfa_tool.version import __version__
 
-__all__ = ["fit", "check", "bootstrap", "cutoffs", "scores", "explore", "parse_model", "__version__"]
+__all__ = ["fit", "check", "bootstrap", "cutoffs", "scores", "explore", "compare", "invariance", "replicate",
+           "split_half", "power", "power_simulation", "simulate", "parse_model", "__version__"]
+
+# workflow entry points: public name -> (module, function)
+_WORKFLOWS = {
+    "compare": ("cfa_tool.workflows.compare", "compare"),
+    "invariance": ("cfa_tool.workflows.invariance", "invariance"),
+    "replicate": ("cfa_tool.workflows.replication", "replicate"),
+    "split_half": ("cfa_tool.workflows.replication", "split_half"),
+    "power": ("cfa_tool.workflows.power", "plan"),
+    "power_simulation": ("cfa_tool.workflows.montecarlo", "monte_carlo_power"),
+    "simulate": ("cfa_tool.workflows.simulation", "simulate"),
+}
 
 
 def _presenter():
@@ -50,6 +62,11 @@ def __getattr__(name: str):
         from cfa_tool.workflows.explore import explore
 
         return explore
+    if name in _WORKFLOWS:
+        import importlib
+
+        module, function = _WORKFLOWS[name]
+        return getattr(importlib.import_module(module), function)
     if name == "parse_model":
         from cfa_tool.language.parser import parse_model
 

@@ -304,7 +304,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     return fit_result(spec=spec, method=method, converged=est.converged, iterations=est.iterations, message=est.message,
                       theta=theta, n_obs=n_total, data=overall, observed=table.observed, latent=table.latent, fit=fit,
                       robust=robust, estimates=estimates, modification_indices=mis, groups=group_results,
-                      warnings=warnings, options=options, group_column=group_column, problems=problems)
+                      warnings=warnings, options=options, group_column=group_column, problems=problems,
+                      parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels)
 
 
 def estimate_rows(table: ParameterTable, values: np.ndarray, inference, std_all: np.ndarray, std_lv: np.ndarray,

@@ -217,7 +217,8 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     return fit_result(spec=spec, method=fit_method, converged=opt.converged, iterations=opt.iterations, message=message,
                       theta=theta, n_obs=n, data=summary, observed=table.observed, latent=table.latent, fit=fit,
                       robust=robust, estimates=estimates, modification_indices=modification, groups=(group,),
-                      warnings=warnings, options=options, problems=problems)
+                      warnings=warnings, options=options, problems=problems,
+                      parameter_covariance=cov_theta if opt.converged else None, parameter_labels=table.free_labels)
 
 
 # ---------------------------------------------------------------- several groups
@@ -420,7 +421,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                       iterations=est.iterations, message=est.message, theta=theta, n_obs=n, data=total,
                       observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
                       modification_indices=modification_rows, groups=group_results, warnings=warnings, options=options,
-                      group_column=group_column, problems=problems)
+                      group_column=group_column, problems=problems,
+                      parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels)
 
 
 def fit_ordinal_groups(spec: Spec, groups: list, options, method: Weighting | str = Weighting.DIAGONAL,

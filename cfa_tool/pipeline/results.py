@@ -10,6 +10,7 @@ from cfa_tool.assessment.fit_indices import FitIndices
 from cfa_tool.assessment.modification import ModificationIndex
 from cfa_tool.assessment.normality import Normality
 from cfa_tool.inference.robust import RobustFit
+from cfa_tool.errors import EstimationError
 from cfa_tool.method import FitMethod
 from cfa_tool.numerics.plain import clean
 from cfa_tool.views import Presentable, scorer
@@ -184,6 +185,33 @@ class FitResult(Presentable):
     labels: dict | None = None  # variable and value labels from SPSS/Stata files
     description: object | None = None  # model.description.ModelDescription: what exactly was fitted
     problems: tuple = ()  # assessment.admissibility.Problem: what makes the solution impossible or doubtful
+    parameter_covariance: np.ndarray | None = field(repr=False, default=None)  # of the free parameters (theta)
+    parameter_labels: tuple[str, ...] = ()  # one per free parameter
+
+    def cov_params(self):
+        """The covariance matrix of the free parameters' estimates (the one the standard errors come from:
+        model-based, or robust with a robust test or ordinal items), labelled, as a DataFrame."""
+        import pandas as pd
+
+        if self.parameter_covariance is None:
+            raise EstimationError("no standard errors: the estimation did not converge")
+        labels = list(self.parameter_labels)
+        return pd.DataFrame(self.parameter_covariance, index=labels, columns=labels)
+
+    def conf_int(self, level: float = 0.95):
+        """Wald intervals of the free parameters' estimates at ``level`` (estimate +/- z SE), one row per
+        estimate row, as a DataFrame with kind, variables, group, estimate, lower and upper."""
+        import pandas as pd
+
+        from cfa_tool import options as check
+        from cfa_tool.numerics.distributions import norm_ppf
+
+        level = check.probability("the confidence level", level)
+        z = float(norm_ppf(0.5 + level / 2))
+        rows = [{"kind": r.kind, "variables": ", ".join(r.variables), "group": r.group, "estimate": r.estimate,
+                 "lower": r.estimate - z * r.se, "upper": r.estimate + z * r.se}
+                for r in self.estimates if r.free and np.isfinite(r.se)]
+        return pd.DataFrame(rows, columns=["kind", "variables", "group", "estimate", "lower", "upper"])
 
     @property
     def admissible(self) -> bool:
@@ -287,7 +315,8 @@ class FitResult(Presentable):
 def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, message: str, theta: np.ndarray | None,
                n_obs: int, data: DataSummary, observed: tuple[str, ...], latent: tuple[str, ...], fit: FitIndices | None,
                robust: RobustFit | None, estimates, modification_indices, groups, warnings, options,
-               group_column: str | None = None, problems: tuple = ()) -> FitResult:
+               group_column: str | None = None, problems: tuple = (), parameter_covariance: np.ndarray | None = None,
+               parameter_labels: tuple[str, ...] = ()) -> FitResult:
     """The one place a FitResult is assembled, for every estimator (continuous, incomplete and ordinal
     items, one group or several), from the estimation's and the assessment's pieces.  The model's
     names and text come from ``spec``, the estimator line from ``method``, the display settings of
@@ -299,5 +328,6 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         message=message, n_obs=n_obs, data=data, observed=observed, latent=latent, fit=fit, robust=robust,
         estimates=tuple(estimates), modification_indices=tuple(modification_indices), groups=groups,
         group_column=group_column, warnings=tuple(warnings), mi_threshold=options.mi_threshold, mi_top=options.mi_top,
-        theta=theta, problems=tuple(problems),
+        theta=theta, problems=tuple(problems), parameter_covariance=parameter_covariance,
+        parameter_labels=tuple(parameter_labels),
     )

@@ -19,6 +19,7 @@ from cfa_tool.language.spec import Spec
 from cfa_tool.method import FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.nesting import DifferenceTest, difference_test, is_nested, scaled_difference_tests
+from cfa_tool.views import Presentable
 
 
 @dataclass(frozen=True)
@@ -31,7 +32,7 @@ class NotNested:
 
 
 @dataclass(frozen=True, eq=False)
-class Comparison:
+class Comparison(Presentable):
     names: tuple[str, ...]
     results: tuple[FitResult, ...]
     tests: tuple[DifferenceTest, ...]

@@ -27,6 +27,7 @@ from cfa_tool.pipeline.continuous import assess, estimate
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.nesting import DifferenceTest, difference_test
+from cfa_tool.views import Presentable
 
 LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
     # level, classes held equal, parameter kinds the step adds
@@ -193,7 +194,7 @@ class LatentDifference:
 
 
 @dataclass(frozen=True, eq=False)
-class InvarianceResult:
+class InvarianceResult(Presentable):
     group_column: str
     groups: tuple[str, ...]
     steps: tuple[InvarianceStep, ...]

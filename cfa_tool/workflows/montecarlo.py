@@ -19,6 +19,7 @@ from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fit
 from cfa_tool.language.spec import Spec
 from cfa_tool.workflows.parallel import run_tasks
 from cfa_tool.workflows.simulation import population_from_spec, simulate_rows
+from cfa_tool.views import Presentable
 
 
 @dataclass(frozen=True)
@@ -42,7 +43,7 @@ class ParameterPower:
 
 
 @dataclass(frozen=True)
-class MonteCarloPower:
+class MonteCarloPower(Presentable):
     n_obs: int
     replications: int
     converged: int

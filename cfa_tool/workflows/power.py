@@ -17,6 +17,7 @@ from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
 from cfa_tool.errors import OptionError
+from cfa_tool.views import Presentable
 
 TESTS = {  # name: (eps0, eps_a), the conventions of MacCallum, Browne & Sugawara (1996)
     "close": (0.05, 0.08),
@@ -26,7 +27,7 @@ TESTS = {  # name: (eps0, eps_a), the conventions of MacCallum, Browne & Sugawar
 
 
 @dataclass(frozen=True)
-class PowerResult:
+class PowerResult(Presentable):
     test: str
     df: int
     rmsea_null: float

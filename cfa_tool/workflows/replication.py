@@ -28,10 +28,11 @@ from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.pipeline.continuous import fit_moments
 from cfa_tool.language.spec import Spec
 from cfa_tool.pipeline.results import FitResult, clean
+from cfa_tool.views import Presentable
 
 
 @dataclass(frozen=True, eq=False)
-class Replication:
+class Replication(Presentable):
     calibration: str
     validation: str
     calibration_result: FitResult

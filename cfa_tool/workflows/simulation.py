@@ -28,6 +28,7 @@ from cfa_tool.errors import OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
+from cfa_tool.views import Presentable
 
 #: Defaults on the standardized metric
 STANDARDIZED_LOADING = 0.7
@@ -285,7 +286,7 @@ def to_ordinal(rows: np.ndarray, sigma: np.ndarray, categories: int) -> np.ndarr
 
 
 @dataclass(frozen=True, eq=False)
-class SimulatedData:
+class SimulatedData(Presentable):
     """Rows simulated from a population, with the population they came from."""
 
     frame: pd.DataFrame

@@ -1,0 +1,54 @@
+"""Every command is callable from Python and returns a result object that shows itself (summary, notebook
+view) and gives its data (to_dict)."""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+
+import cfa_tool
+
+THREE = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+
+
+def _shows_itself(result) -> None:
+    text = result.summary()
+    assert text.strip() and "Traceback" not in text
+    page = result._repr_html_()
+    assert page.startswith("<") and "\\n" not in page
+    json.dumps(result.to_dict(), allow_nan=False)
+
+
+@pytest.mark.parametrize("command", ["compare", "invariance", "split_half", "power", "power_simulation", "simulate",
+                                     "fit", "scores", "explore"])
+def test_every_command_from_python(command, hs_data):
+    call = {
+        "compare": lambda: cfa_tool.compare([THREE, THREE + "covary x7, x8\n"], hs_data),
+        "invariance": lambda: cfa_tool.invariance(THREE, hs_data, "school"),
+        "split_half": lambda: cfa_tool.split_half(THREE, hs_data, seed=3)[0],
+        "power": lambda: cfa_tool.power(24, n_obs=301),
+        "power_simulation": lambda: cfa_tool.power_simulation(THREE, 300, replications=3, seed=2),
+        "simulate": lambda: cfa_tool.simulate(THREE, 50, seed=1),
+        "fit": lambda: cfa_tool.fit(THREE, hs_data),
+        "scores": lambda: cfa_tool.scores(THREE, hs_data),
+        "explore": lambda: cfa_tool.explore(hs_data[[f"x{i}" for i in range(1, 10)]], factors=3),
+    }[command]
+    _shows_itself(call())
+    assert command in cfa_tool.__all__
+
+
+def test_cov_params_and_conf_int(hs_data):
+    # the standard errors are the square roots of the diagonal of cov_params (loadings with coefficient 1);
+    # intervals at 90% are estimate +/- 1.6449 SE (normal quantile, scipy)
+    from scipy import stats
+
+    result = cfa_tool.fit(THREE, hs_data)
+    cov = result.cov_params()
+    assert cov.shape == (21, 21) and list(cov.index) == list(result.parameter_labels)
+    x2 = next(r for r in result.estimates if r.kind == "loading" and r.variables == ("visual", "x2"))
+    assert cov.loc["loading(visual, x2)", "loading(visual, x2)"] ** 0.5 == pytest.approx(x2.se, rel=1e-10)
+    frame = result.conf_int(0.90)
+    row = frame[(frame["kind"] == "loading") & (frame["variables"] == "visual, x2")].iloc[0]
+    assert row["upper"] == pytest.approx(x2.estimate + stats.norm.ppf(0.95) * x2.se, rel=1e-10)
+    assert len(frame) == sum(r.free for r in result.estimates)
