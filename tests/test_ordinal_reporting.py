@@ -62,3 +62,13 @@ def test_continuous_robust_indices_name_their_definition(hs_data):
     assert "Brosseau-Liard, Savalei & Li (2012)" in note
     row = next(row for row in T.fit_table(result).rows if row[0].strip() == "scaling factor")
     assert float(row[1]) == pytest.approx(result.fit.chi_square / result.robust.chi_square_scaled, abs=5e-4)
+
+
+def test_category_frequencies_of_ordinal_items(ordinal_fit):
+    result, data = ordinal_fit
+    table = T.category_table(result)
+    counts = data["y3"].value_counts().sort_index()
+    row = next(r for r in table.rows if r[0] == "y3")
+    assert list(row[1:]) == [f"{v:g}: {c} ({100 * c / len(data):.0f}%)" for v, c in counts.items()]
+    out = result.to_dict()["data"]["category_counts"]["y3"]
+    assert [(c["value"], c["rows"]) for c in out] == [(float(v), int(c)) for v, c in counts.items()]

@@ -101,6 +101,19 @@ def ordinal_spec(spec: Spec) -> tuple[Spec, set[str]]:
     return dc_replace(spec, fixed=spec.fixed + ((ValueSetting(refs, 1.0),) if refs else ())), derived_items
 
 
+def _category_counts(moments, order: list[int]) -> tuple:
+    """Per item (in model order), each answer value with the number of rows giving it (empty for continuous
+    items analysed beside the ordinal ones)."""
+    out = []
+    for k in order:
+        if moments.names[k] in moments.continuous:
+            out.append(())
+            continue
+        counts = np.bincount(moments.codes[:, k], minlength=len(moments.categories[k]))
+        out.append(tuple((float(v), int(c)) for v, c in zip(moments.categories[k], counts)))
+    return tuple(out)
+
+
 def _first_step_thresholds(moments, order: list[int]) -> tuple[EstimateRow, ...]:
     """The thresholds of a one-group ordinal fit, estimated in its first step (Olsson 1979), as rows of the
     estimates (on the latent response's scale, variance 1), with standard errors when the first step's
@@ -205,7 +218,8 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     if opt.converged:
         warnings.extend(keying_warnings(factors))
     summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
-                          tuple(float(moments.means[k]) for k in order), tuple(float(moments.sds[k]) for k in order))
+                          tuple(float(moments.means[k]) for k in order), tuple(float(moments.sds[k]) for k in order),
+                          categories=_category_counts(moments, order))
     if moments.continuous:
         warnings.append("continuous items are analysed beside the ordinal ones in the correlation metric (polyserial and "
                         "Pearson correlations): their unstandardized estimates are in standard-deviation units")
@@ -404,7 +418,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         sd = np.sqrt(np.clip(np.diag(sigma), 1e-300, None))
         rho = sigma / np.outer(sd, sd)
         summary = DataSummary(mg.source, mg.rows_read, mg.rows_dropped, mg.n_obs, table.observed,
-                              tuple(float(v) for v in mg.means), tuple(float(v) for v in mg.sds))
+                              tuple(float(v) for v in mg.means), tuple(float(v) for v in mg.sds),
+                              categories=_category_counts(mg, [mg.names.index(x) for x in table.observed]))
         factors, htmt = reliability(mats[g], table.observed, table.latent, mg.correlations,
                                     declared=spec.reverse_keyed or None, sum_scores=False, not_traits=spec.method_factors)
         if est.converged:

@@ -98,6 +98,8 @@ class DataSummary:
     answered: tuple[int, ...] = ()  # rows answering each item (empty when the raw rows are not at hand)
     skewness: tuple[float, ...] = ()
     kurtosis: tuple[float, ...] = ()  # excess kurtosis
+    # ordinal items: per item, (answer value, rows giving it) for each category, in order
+    categories: tuple[tuple[tuple[float, int], ...], ...] = ()
 
     def to_dict(self) -> dict:
         out = {
@@ -111,6 +113,9 @@ class DataSummary:
         }
         if self.skewness:
             out.update(answered=list(self.answered), skewness=list(self.skewness), excess_kurtosis=list(self.kurtosis))
+        if self.categories:
+            out["category_counts"] = {name: [{"value": v, "rows": c} for v, c in cats]
+                                      for name, cats in zip(self.variables, self.categories)}
         return clean(out)
 
 

@@ -138,9 +138,9 @@ def html_report(result) -> str:
     sections.append("<h2>Data</h2>")
     sections.append(table_html(T.item_table(result)))
     for g in range(len(result.groups)):
-        correlations = T.correlation_table(result, g)
-        if correlations is not None:
-            sections.append(table_html(correlations))
+        for extra in (T.category_table(result, g), T.correlation_table(result, g)):
+            if extra is not None:
+                sections.append(table_html(extra))
     missing = T.missing_table(result)
     if missing is not None:
         sections.append(table_html(missing))

@@ -558,6 +558,28 @@ def item_table(result) -> ReportTable:
                   values=([c for c, _ in columns], values))
 
 
+def category_table(result, group: int = 0) -> ReportTable | None:
+    """Ordinal items: how many rows gave each answer (with the share), per item."""
+    d = result.groups[group].data
+    if not d.categories or not any(d.categories):
+        return None
+    width = max(len(c) for c in d.categories)
+    rows, values = [], []
+    for name, cats in zip(d.variables, d.categories):
+        if not cats:
+            continue
+        total = sum(c for _, c in cats) or 1
+        rows.append([name] + [f"{v:g}: {c} ({100 * c / total:.0f}%)" for v, c in cats] + [""] * (width - len(cats)))
+        values.append([name] + [c for _, c in cats] + [None] * (width - len(cats)))
+    label = result.groups[group].label
+    where = f" in group {label}" if label is not None else ""
+    return _table(f"categories_{group}", f"Answers per category{where} (rows analysed)",
+                  [("Item", "l")] + [(str(k + 1), "r") for k in range(width)], rows,
+                  "Each cell: the answer value, the rows giving it and their share. Categories nobody chose do not "
+                  "appear (their threshold cannot be estimated).",
+                  values=(["Item"] + [f"Category {k + 1} rows" for k in range(width)], values))
+
+
 def correlation_table(result, group: int = 0) -> ReportTable | None:
     """The items' sample correlations (lower triangle), with the number of rows they come from."""
     names = result.observed

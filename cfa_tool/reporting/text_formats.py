@@ -30,9 +30,9 @@ def all_tables(result) -> list[ReportTable]:
         if extra is not None:
             out.append(extra)
     for g in range(len(result.groups)):
-        correlations = T.correlation_table(result, g)
-        if correlations is not None:
-            out.append(correlations)
+        for extra in (T.category_table(result, g), T.correlation_table(result, g)):
+            if extra is not None:
+                out.append(extra)
     return out
 
 
