@@ -547,7 +547,7 @@ def _report_files(args: argparse.Namespace, result) -> list[tuple[str, object, s
     if getattr(args, "diagram", None):
         from cfa_tool.reporting.diagram import path_diagram
 
-        svg = path_diagram(result)
+        svg = path_diagram(result, legend=True)
         content = svg_to_png(svg, args.dpi) if args.diagram.lower().endswith(".png") else svg
         files.append(("--diagram", content, f"Path diagram written to {args.diagram}"))
     return files

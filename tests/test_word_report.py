@@ -77,3 +77,19 @@ def test_cli_writes_word_and_checks_dpi(tmp_path, hs_data):
     assert proc.returncode == 2 and "--dpi" in proc.stderr and not (tmp_path / "s.docx").exists()
     proc = run("fit", str(model), "--data", str(data), "--docx", str(data))
     assert proc.returncode == 2 and "x1" in data.read_text().splitlines()[0]  # an input is never replaced
+
+
+def test_one_diagram_per_group_named_on_it(hs_data):
+    from cfa_tool.reporting.html_report import html_report
+
+    result = cfa_tool.fit("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\n", hs_data, group="school")
+    page = html_report(result)
+    assert page.count('class="path-diagram"') == 2
+    assert "Group Grant-White</text>" in page and "Group Pasteur</text>" in page
+    standalone = path_diagram(result, legend=True)
+    assert "Ellipses: factors" in standalone and "Group Grant-White" in standalone
+    if CONVERTER:
+        document = docx.Document(io.BytesIO(docx_report(result)))
+        assert len(document.inline_shapes) == 2
+        assert "Path diagram of the fitted model, group Pasteur (standardized values)" in [p.text for p in
+                                                                                           document.paragraphs]

@@ -38,7 +38,12 @@ def _label(x: float, y: float, text: str, size: int = 11, anchor: str = "middle"
 
 
 
-def path_diagram(result, group: int = 0) -> str:
+LEGEND = ("Standardized values. Ellipses: factors; rectangles: observed items; circles: residual terms (share of "
+          "variance not explained); dashed arrows: loadings fixed to set a factor's scale; curved double arrows: "
+          "correlations.")
+
+
+def path_diagram(result, group: int = 0, legend: bool = False) -> str:
     """The model of ``result`` (one group's standardized values) as an SVG document string.  Elements whose
     parameter is part of a problem of the solution (a negative residual variance, a correlation beyond
     +/-1, ...) are drawn in red with the class ``problem``."""
@@ -102,6 +107,20 @@ def path_diagram(result, group: int = 0) -> str:
     y_res = y_ind + BOX_H + 48
     drops = [20 + 0.08 * abs(centre[r.variables[0]] - centre[r.variables[1]]) for r in rows if r.kind == "residual_covariance"]
     height = y_res + RESIDUAL_R + max(drops, default=0.0) + 50
+    legend_y = height
+    legend_lines = ["Standardized values. Ellipses: factors; rectangles: observed items;",
+                    "circles: residual terms (share of variance not explained);",
+                    "dashed arrows: loadings fixed to set a factor's scale; curved double arrows: correlations."]
+    if problems:
+        legend_lines.append("Red: a value that makes the solution impossible or doubtful (see the report).")
+    if legend:  # a file that stands alone says what its shapes mean
+        height += 10 + 18 * len(legend_lines)
+        width = max(width, 640.0)
+    if label is not None:  # the group is named on its own diagram
+        margin_top = 26
+        height += margin_top
+    else:
+        margin_top = 0
 
     parts = [
         f'<svg xmlns="http://www.w3.org/2000/svg" class="path-diagram" viewBox="0 0 {width:.0f} {height:.0f}" '
@@ -111,6 +130,10 @@ def path_diagram(result, group: int = 0) -> str:
         '<defs><marker id="head" viewBox="0 0 10 10" refX="9" refY="5" markerWidth="7" markerHeight="7" orient="auto-start-reverse">'
         '<path d="M0,0 L10,5 L0,10 z" fill="#333"/></marker></defs>',
     ]
+    if label is not None:
+        parts.append(f'<text class="group-name" x="{margin:.1f}" y="20" font-size="15" font-weight="bold">'
+                     f'Group {esc(label)}</text>')
+        parts.append(f'<g transform="translate(0,{margin_top})">')
     # loadings
     for r in loadings:
         f, target = r.variables
@@ -178,6 +201,13 @@ def path_diagram(result, group: int = 0) -> str:
         if resid is not None:
             parts.append(_label(centre[name] + RESIDUAL_R + 3, y_res + 4, unit(resid.standardized, 2), size=10, anchor="start",
                                 problem=bad))
+    if label is not None:
+        parts.append("</g>")
+    if legend:
+        for k, line in enumerate(legend_lines):
+            colour = f' fill="{PROBLEM_COLOUR}"' if problems and k == len(legend_lines) - 1 else ""
+            parts.append(f'<text class="legend" x="{margin:.1f}" y="{legend_y + margin_top + 16 + 18 * k:.1f}" '
+                         f'font-size="11"{colour}>{esc(line)}</text>')
     parts.append("</svg>")
     return "\n".join(parts) + "\n"
 

@@ -15,7 +15,7 @@ from docx.oxml.ns import qn
 from docx.shared import Inches, Pt, RGBColor
 
 from cfa_tool.reporting import tables as T
-from cfa_tool.reporting.diagram import path_diagram
+from cfa_tool.reporting.diagram import LEGEND, path_diagram
 from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.picture import DEFAULT_DPI, png_converter, svg_to_png
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
@@ -110,11 +110,11 @@ def docx_report(result, dpi: int = DEFAULT_DPI) -> bytes:
     if png_converter() is None:
         document.add_paragraph(NO_PICTURE)
     else:
-        _caption(document, "Figure 1", "Path diagram of the fitted model (standardized values)")
-        document.add_picture(io.BytesIO(svg_to_png(path_diagram(result), dpi)), width=Inches(6.5))
-        _note(document, "Ellipses are factors, rectangles observed items, circles residual terms (share of variance "
-                        "not explained); dashed arrows are loadings fixed to set a factor's scale."
-                        + (" Elements in red show a problem of the solution." if notice is not None else ""))
+        for g, group in enumerate(result.groups):
+            where = "" if group.label is None else f", group {group.label}"
+            _caption(document, f"Figure {g + 1}", f"Path diagram of the fitted model{where} (standardized values)")
+            document.add_picture(io.BytesIO(svg_to_png(path_diagram(result, g), dpi)), width=Inches(6.5))
+            _note(document, LEGEND + (" Elements in red show a problem of the solution." if notice is not None else ""))
     document.add_heading("Cautions", level=2)
     document.add_paragraph(GUIDE_NOTE)
     document.add_paragraph(HIGH_STAKES_NOTE)

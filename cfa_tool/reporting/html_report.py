@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from cfa_tool.version import __version__
 from cfa_tool.reporting import tables as T
-from cfa_tool.reporting.diagram import path_diagram
+from cfa_tool.reporting.diagram import LEGEND, path_diagram
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
@@ -105,10 +105,9 @@ def html_report(result) -> str:
     sections += [
         "<h2>Summary for a paper</h2>",
         f'<p class="summary" id="methods-paragraph">{esc(methods_paragraph(result))}</p>',
-        "<h2>Path diagram</h2>",
-        f'<div class="diagram">{path_diagram(result)}</div>',
-        '<p class="note">Standardized values. Ellipses: factors; rectangles: observed items; circles: residual terms '
-        "(share of variance not explained); dashed arrows: loadings fixed to set a factor's scale.</p>",
+        "<h2>Path diagram" + ("s" if result.multigroup else "") + "</h2>",
+        *(f'<div class="diagram">{path_diagram(result, g)}</div>' for g in range(len(result.groups))),
+        f'<p class="note">{esc(LEGEND)}</p>',
     ]
     if result.fit is not None and result.converged:
         sections += ["<h2>Fit</h2>", table_html(T.fit_table(result))]
