@@ -132,8 +132,8 @@ FACETS = "factor f1: y1..y4\nfactor f2: y5..y8\nfactor f3: y9..y12\n"
     (FACETS + "factor g: f1, f2, f3\n", {}, SCALINGS),
     (FACETS + "factor g: f1, f2, f3\n", {"ordinal": "all"}, SCALINGS),
     (FACETS + "factor g: y1..y12\nuncorrelated g, f1, f2, f3\n", {}, SCALINGS),
-    (FACETS + "invariant loadings\n", {"group": "site"}, ("marker", "variance")),  # no effects coding with groups
-    (FACETS + "invariant loadings, thresholds\n", {"group": "site", "ordinal": "all"}, ("marker", "variance")),
+    (FACETS + "invariance metric\n", {"group": "site"}, ("marker", "variance")),  # no effects coding with groups
+    (FACETS + "invariance metric\n", {"group": "site", "ordinal": "all"}, ("marker", "variance")),
 ], ids=["higher-order", "higher-order ordinal", "bifactor", "two groups", "two groups ordinal"])
 def test_start_values_serve_higher_order_bifactor_and_multigroup_models(text, options, scalings):
     data = _structured_scale()

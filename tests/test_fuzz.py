@@ -45,7 +45,11 @@ statement = st.one_of(
     st.tuples(st.sampled_from(["latent", "f", "f, g"]), st.sampled_from(["marker", "variance", "effects", "magic"])).map(
         lambda t: f"scale {t[0]} by {t[1]}"),
     st.tuples(names, refs, number).map(lambda t: f"in group {t[0]}: fix {t[1]} = {t[2]}"),
-    name_list.map(lambda s: f"invariant {s}"),
+    name_list.map(lambda s: f"invariant {s}"),  # the form of earlier versions: an error showing the new one
+    st.sampled_from(["configural", "thresholds", "metric", "scalar", "strict", "scalr", "f"]).map(
+        lambda s: f"invariance {s}"),
+    st.lists(st.sampled_from(["loadings", "error variances", "factor means", "factor covariances", "means", "error"]),
+             min_size=1, max_size=3).map(lambda s: f"equal across groups: {', '.join(s)}"),
     refs.map(lambda s: f"noninvariant {s}"),
     quoted.map(lambda s: f"name {s}"),
     name_list.map(lambda s: f"ordinal {s}"),
@@ -144,8 +148,8 @@ def ordinal_frames(draw):
 
 ordinal_models = st.sampled_from([
     "factor f: q1, q2, q3\nfactor g: q4, q5, q6\nordinal q1..q6\n",
-    "factor f: q1..q6\nordinal q1..q6\ninvariant thresholds, loadings\n",
-    "factor f: q1, q2, q3\nfactor g: q4, q5, q6\nordinal q1..q6\ninvariant thresholds, loadings, intercepts\n"
+    "factor f: q1..q6\nordinal q1..q6\ninvariance metric\n",
+    "factor f: q1, q2, q3\nfactor g: q4, q5, q6\nordinal q1..q6\ninvariance scalar\n"
     "noninvariant threshold(q2)\nscale latent by variance\n",
     "factor f: q1, q2, q3\nfactor g: q4, q5, q6\nordinal q1..q6\nreversed q1, q4 on 1 to 5\n",
 ])

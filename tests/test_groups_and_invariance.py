@@ -139,7 +139,7 @@ def test_partial_search_finds_the_one_shifted_intercept():
 
 
 def test_group_specific_statements(hs_data):
-    model = THREE_FACTORS + "invariant loadings\nin group Pasteur: fix variance(x1) = 0.5\nnoninvariant loading(visual, x2)\n"
+    model = THREE_FACTORS + "invariance metric\nin group Pasteur: fix variance(x1) = 0.5\nnoninvariant loading(visual, x2)\n"
     result = cfa_tool.fit(model, hs_data, group="school")
     est = {(r.group, r.kind, r.variables): r for r in result.estimates}
     assert est[("Pasteur", "residual_variance", ("x1",))].estimate == 0.5

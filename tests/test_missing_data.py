@@ -179,7 +179,7 @@ def test_yuan_bentler_scaling_is_near_one_for_normal_data_with_gaps():
     assert result.robust.p_value_scaled > 0.001
 
 
-@pytest.mark.parametrize("group, extra", [(None, "covary x1, x4\n"), ("school", "invariant loadings, intercepts\n")])
+@pytest.mark.parametrize("group, extra", [(None, "covary x1, x4\n"), ("school", "invariance scalar\n")])
 def test_closed_form_fiml_hessian_matches_differences_of_the_gradient(hs_holes, group, extra):
     # the observed information used for standard errors under MAR, in closed form, against central
     # differences of the row-by-row gradient (with groups: free factor means, whose second derivatives enter)

@@ -70,20 +70,20 @@ def test_threshold_invariance_of_three_category_items_is_an_equivalent_model():
     cuts = (-0.5, 0.6)
     data = _two_groups(_draw(700, 3, cuts), _draw(600, 4, cuts, mean=0.4, sd=1.2))
     configural = cfa_tool.fit(MODEL, data, group="site")
-    equal = cfa_tool.fit(MODEL + "invariant thresholds\n", data, group="site")
+    equal = cfa_tool.fit(MODEL + "invariance thresholds\n", data, group="site")
     assert equal.converged
     assert equal.fit.df == configural.fit.df
     assert equal.fit.chi_square == pytest.approx(configural.fit.chi_square, rel=1e-5, abs=1e-6)
     # with four categories the same step has one testable restriction per item
     cuts = (-1.0, 0.0, 1.0)
     four = _two_groups(_draw(700, 3, cuts), _draw(600, 4, cuts, mean=0.4))
-    assert (cfa_tool.fit(MODEL + "invariant thresholds\n", four, group="site").fit.df
+    assert (cfa_tool.fit(MODEL + "invariance thresholds\n", four, group="site").fit.df
             == cfa_tool.fit(MODEL, four, group="site").fit.df + 6)
 
 
 def test_scalar_model_recovers_the_population_mean_and_variance():
     data = _two_groups(_draw(4000, 5), _draw(4000, 6, mean=0.5, sd=1.2))
-    result = cfa_tool.fit(MODEL + "invariant thresholds, loadings, intercepts\nscale latent by variance\n", data, group="site")
+    result = cfa_tool.fit(MODEL + "invariance scalar\nscale latent by variance\n", data, group="site")
     assert result.converged
     rows = {(r.kind, r.variables, r.group): r for r in result.estimates}
     for f in ("f1", "f2"):
@@ -153,14 +153,14 @@ def test_errors_for_groups_with_ordinal_items():
         cfa_tool.fit(mixed, _two_groups(a, _draw(300, 2)), group="site")
     with pytest.raises(ModelError, match="can only be named in 'noninvariant'"):
         cfa_tool.fit(MODEL + "fix threshold(q1) = 0\n", _two_groups(a, _draw(300, 2)), group="site")
-    with pytest.raises(ModelError, match="'invariant thresholds' applies to ordinal items"):
-        cfa_tool.fit(MODEL.replace("ordinal q1..q6\n", "") + "invariant thresholds\n", _two_groups(a, _draw(300, 2)),
+    with pytest.raises(ModelError, match="holding thresholds equal across groups applies to ordinal items"):
+        cfa_tool.fit(MODEL.replace("ordinal q1..q6\n", "") + "invariance thresholds\n", _two_groups(a, _draw(300, 2)),
                      group="site")
     with pytest.raises(EstimationError, match=r"not identified.*mean\(f1\) \[south\]"):
         # a factor mean with free thresholds: any shift of the mean is matched by the thresholds
         cfa_tool.fit(MODEL + "in group south: free mean(f1)\n", _two_groups(a, _draw(300, 2)), group="site")
     with pytest.raises(ModelError, match="'q1' is not treated as ordinal"):
-        cfa_tool.fit(MODEL.replace("ordinal q1..q6\n", "") + "invariant loadings\nnoninvariant threshold(q1)\n",
+        cfa_tool.fit(MODEL.replace("ordinal q1..q6\n", "") + "invariance metric\nnoninvariant threshold(q1)\n",
                      _two_groups(a, _draw(300, 2)), group="site")
 
 

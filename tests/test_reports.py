@@ -208,7 +208,7 @@ def test_methods_paragraph_states_missing_data_handling_and_groups(hs_data):
     assert "full-information maximum likelihood" in full and "including rows with missing answers" in full
     listwise = methods_paragraph(cfa_tool.fit(HS_BASE, holes, missing="listwise"))
     assert "30 of 301 rows with missing answers were excluded listwise" in listwise and "N = 271" in listwise
-    grouped = methods_paragraph(cfa_tool.fit(HS_BASE + "invariant loadings\n", hs_data, group="school"))
+    grouped = methods_paragraph(cfa_tool.fit(HS_BASE + "invariance metric\n", hs_data, group="school"))
     assert "in 2 groups defined by school" in grouped and "Held equal across groups: loadings." in grouped
 
 

@@ -124,7 +124,7 @@ def test_pattern_grouping_matches_numpys_grouping_of_rows():
 
 
 def test_each_group_is_scored_with_its_own_intercepts_and_factor_means():
-    text = (resource_dir("models") / "rider_three_factors.cfa").read_text() + "invariant loadings, intercepts\n"
+    text = (resource_dir("models") / "rider_three_factors.cfa").read_text() + "invariance scalar\n"
     spec, frame, source = read_inputs(text, resource_dir("demo") / "rider_survey.csv")
     frame = frame.dropna(subset=list(spec.observed_names))
     groups, _ = moments_for(spec, frame, source, group="district")

@@ -165,7 +165,7 @@ def test_eap_scores_from_a_two_group_ordinal_fit_average_to_each_groups_factor_m
         x = np.outer(eta, [0.8, 0.7, 0.6, 0.75]) + rng.normal(size=(1500, 4)) * np.sqrt(1 - np.array([0.64, 0.49, 0.36, 0.5625]))
         frames.append(pd.DataFrame(np.searchsorted([-1.0, 0.0, 1.0], x) + 1, columns=["q1", "q2", "q3", "q4"]).assign(site=label))
     data = pd.concat(frames, ignore_index=True)
-    spec = parse_model("factor f: q1..q4\nordinal q1..q4\ninvariant thresholds, loadings, intercepts\n")
+    spec = parse_model("factor f: q1..q4\nordinal q1..q4\ninvariance scalar\n")
     groups, _ = ordinal_groups(spec, data, "data", "site", None, set(spec.observed_names))
     est = estimate_ordinal_groups(spec, groups, FitOptions())
     models = ordinal_score_inputs(est, groups)

@@ -330,7 +330,7 @@ def _check_contradictions(spec: Spec) -> None:
         if len(kinds) > 1:
             raise _fail(spec, "'equal' can only join parameters of one kind (all loadings, all variances, ...)", group[0].location)
         if len({r.group for r in group}) > 1:
-            raise _fail(spec, "'equal' within 'in group' applies to one group; to hold a parameter equal across groups use 'invariant'", group[0].location)
+            raise _fail(spec, "'equal' within 'in group' applies to one group; to hold parameters equal across groups use 'invariance LEVEL' or 'equal across groups: ...'", group[0].location)
 
 
 def _check_indicator_counts(spec: Spec) -> None:

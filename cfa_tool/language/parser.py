@@ -20,7 +20,9 @@ from cfa_tool.suggest import close_names
 from cfa_tool.errors import Location, ModelError, printable
 from cfa_tool.input_files import input_bytes, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.language.spec import (
-    INVARIANCE_CLASSES,
+    GROUP_EQUALITY_WORDS,
+    INVARIANCE_LEVELS,
+    with_ordinal_levels,
     REFERENCE_KINDS,
     SCALING_METHODS,
     BoundSetting,
@@ -36,7 +38,7 @@ from cfa_tool.language.spec import (
 from cfa_tool.resources import resource_dir
 
 STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale", "in",
-                   "invariant", "noninvariant", "ordinal", "reversed", "method")
+                   "invariance", "noninvariant", "ordinal", "reversed", "method")
 
 # Plain words for the grammar's terminals, used in "expected ..." messages.
 _TERMINAL_WORDS = {
@@ -212,6 +214,7 @@ class _Builder:
         ordinal: list[Name] = []
         reversed_items: list[ReverseKeying] = []
         method_factors: list[Name] = []
+        level: str | None = None
         for stmt in tree.children:
             kind = stmt.data
             self.group = None
@@ -255,14 +258,33 @@ class _Builder:
                 bounds.append(BoundSetting(refs, lower, upper))
             elif kind == "scale_stmt":
                 scaling.append(self.scale(stmt))
-            elif kind == "invariant_stmt":
-                for word in self.name_list(stmt.children[0]):
-                    if word.text not in INVARIANCE_CLASSES:
-                        guess = close_names(word.text, INVARIANCE_CLASSES)
-                        hint = f"did you mean '{guess[0]}'?" if guess else "use " + _or_list(list(INVARIANCE_CLASSES))
-                        raise self.error(f"'{word}' is not something that can be held equal across groups; {hint}", word.location)
-                    if word.text not in invariant:
-                        invariant.append(word.text)
+            elif kind == "invariant_stmt":  # the form of earlier versions: say how it is written now
+                raise self.error("'invariant' is written by level now: 'invariance metric' (loadings), 'invariance "
+                                 "scalar' (loadings and intercepts), 'invariance strict' (also error variances), "
+                                 "'invariance thresholds' (ordinal items); other parameters with 'equal across groups: "
+                                 "factor variances, factor covariances, factor means, error variances'", stmt)
+            elif kind == "invariance_stmt":
+                word = self.name(stmt.children[0])
+                if word.text not in INVARIANCE_LEVELS:
+                    guess = close_names(word.text, INVARIANCE_LEVELS)
+                    hint = f"did you mean '{guess[0]}'?" if guess else "use " + _or_list(list(INVARIANCE_LEVELS))
+                    raise self.error(f"'{word}' is not an invariance level; {hint}", word.location)
+                if level is not None:
+                    raise self.error(f"the invariance level is given twice ('{level}' and '{word}'); state the "
+                                     f"highest level that should hold", word.location)
+                level = word.text
+                invariant.extend(c for c in INVARIANCE_LEVELS[level] if c not in invariant)
+            elif kind == "equal_groups_stmt":
+                for words in stmt.children[0].children:
+                    tokens = [t for t in words.children if isinstance(t, Token)]
+                    text = " ".join(str(t) for t in tokens)
+                    where = self.loc(words)
+                    if text not in GROUP_EQUALITY_WORDS:
+                        guess = close_names(text, GROUP_EQUALITY_WORDS)
+                        hint = f"did you mean '{guess[0]}'?" if guess else "use " + _or_list(list(GROUP_EQUALITY_WORDS))
+                        raise self.error(f"'{text}' is not something that can be held equal across groups; {hint}", where)
+                    if GROUP_EQUALITY_WORDS[text] not in invariant:
+                        invariant.append(GROUP_EQUALITY_WORDS[text])
             elif kind == "noninvariant_stmt":
                 noninvariant.extend(self.refs(stmt.children[0]))
             elif kind == "ordinal_stmt":
@@ -282,7 +304,7 @@ class _Builder:
                 "the model declares no factors; write at least one line such as 'factor trait: item1, item2, item3'",
                 Location(self.source, max(1, len(self.lines)), 1),
             )
-        return Spec(
+        return with_ordinal_levels(Spec(
             source=self.source,
             text=self.text,
             title=title,
@@ -300,8 +322,9 @@ class _Builder:
             ordinal=tuple(ordinal),
             reversed=tuple(reversed_items),
             method=tuple(method_factors),
+            invariance_level=level,
             lines=self.lines,
-        )
+        ), ordinal)
 
     def name(self, node: Tree) -> Name:
         token = node.children[0]

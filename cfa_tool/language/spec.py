@@ -27,6 +27,34 @@ INVARIANCE_CLASSES: dict[str, tuple[str, ...]] = {
     "thresholds": ("threshold",),  # of ordinal items
 }
 
+#: What a researcher writes after 'equal across groups:', and the class of parameters each stands for.
+GROUP_EQUALITY_WORDS: dict[str, str] = {
+    "loadings": "loadings",
+    "intercepts": "intercepts",
+    "thresholds": "thresholds",
+    "error variances": "residuals",  # the items' residual variances and covariances
+    "factor variances": "variances",
+    "factor covariances": "covariances",
+    "factor means": "means",
+}
+
+#: The invariance levels a model may state ('invariance scalar'), with the classes each holds equal; for
+#: ordinal items every level from metric on holds the thresholds equal too (Wu & Estabrook 2016).
+INVARIANCE_LEVELS: dict[str, tuple[str, ...]] = {
+    "configural": (),
+    "thresholds": ("thresholds",),
+    "metric": ("loadings",),
+    "scalar": ("loadings", "intercepts"),
+    "strict": ("loadings", "intercepts", "residuals"),
+}
+
+
+def equality_words(classes) -> list[str]:
+    """The words a researcher writes for classes of parameters held equal across groups."""
+    by_class = {c: w for w, c in GROUP_EQUALITY_WORDS.items()}
+    return [by_class.get(c, c) for c in classes]
+
+
 #: Ways to give a factor its scale.
 SCALING_METHODS = ("marker", "variance", "effects")
 
@@ -133,6 +161,7 @@ class Spec:
     ordinal: tuple[Name, ...] = ()
     reversed: tuple[ReverseKeying, ...] = ()
     method: tuple[Name, ...] = ()  # factors of method, not of a trait (wording, acquiescence): no reliability
+    invariance_level: str | None = None  # the level an 'invariance' statement names
     lines: tuple[str, ...] = field(default=(), repr=False, compare=False)
 
     @cached_property
@@ -180,3 +209,14 @@ class Spec:
             if not setting.factors or any(f.text == factor for f in setting.factors):
                 method = setting.method
         return method
+
+
+def with_ordinal_levels(spec: "Spec", ordinal_items) -> "Spec":
+    """The model with the thresholds held equal too when it states an invariance level from metric on and has
+    ordinal items (whether an 'ordinal' statement or an option names them)."""
+    from dataclasses import replace
+
+    if (spec.invariance_level in ("metric", "scalar", "strict") and ordinal_items
+            and "thresholds" not in spec.invariant):
+        return replace(spec, invariant=("thresholds",) + tuple(spec.invariant))
+    return spec

@@ -32,7 +32,7 @@ import numpy as np
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import ModelError
 from cfa_tool.language.checks import all_refs, exogenous_factors
-from cfa_tool.language.spec import INVARIANCE_CLASSES, ParameterRef, Spec
+from cfa_tool.language.spec import INVARIANCE_CLASSES, ParameterRef, Spec, equality_words
 
 MATRIX_CODES = {"L": 0, "B": 1, "P": 2, "T": 3, "N": 4, "M": 5, "K": 6}
 
@@ -257,7 +257,8 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             if kind not in invariant:
                 word = next((w for w, kinds in INVARIANCE_CLASSES.items() if kind in kinds), kind)
                 raise _fail(spec, f"'noninvariant {ref}' exempts a parameter from being held equal across groups, but "
-                                  f"{word} are not held equal ('invariant {word}' is missing), so it has no effect", ref)
+                                  f"{equality_words([word])[0]} are not held equal (no 'invariance' level or 'equal "
+                                  f"across groups' statement holds them), so it has no effect", ref)
 
     def tied_across_groups(kind_key: tuple) -> bool:
         kind, names = kind_key
@@ -489,7 +490,7 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
             raise _fail(spec, "'noninvariant' lets a parameter differ across groups, and this fit has no groups: give "
                               "the group column (--group COLUMN) or remove the statement", spec.noninvariant[0])
         if spec.invariant:
-            raise ModelError(f"the model holds {', '.join(spec.invariant)} equal across groups ('invariant'), and this "
+            raise ModelError(f"the model holds {', '.join(equality_words(spec.invariant))} equal across groups, and this "
                              f"fit has no groups: give the group column (--group COLUMN) or remove the statement")
         return
     for ref in refs:
@@ -505,7 +506,7 @@ def _check_threshold_use(spec: Spec, ordinal: dict[str, int]) -> None:
             raise _fail(spec, f"{ref}: '{ref.names[0]}' is not treated as ordinal in a multi-group fit, so it has no "
                               f"thresholds (declare it with 'ordinal {ref.names[0]}' or --ordinal, and give --group)", ref)
     if "thresholds" in spec.invariant and not ordinal:
-        raise ModelError("'invariant thresholds' applies to ordinal items in a multi-group fit, and this fit has none "
+        raise ModelError("holding thresholds equal across groups applies to ordinal items in a multi-group fit, and this fit has none "
                          "(declare them with 'ordinal ...' or --ordinal, and give --group)", None, None)
 
 

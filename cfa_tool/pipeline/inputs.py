@@ -21,7 +21,7 @@ from cfa_tool import options as opt
 from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
-from cfa_tool.language.spec import Spec
+from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import FitTest, MissingData, Weighting
 from cfa_tool.pipeline.results import CheckResult, FitResult
 
@@ -262,6 +262,7 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
     """The fit of rows of raw data (after reading, filters and model checks)."""
     frame, source = loaded.frame, loaded.source
     ordinal_items = ordinal_items_of(spec, ordinal)
+    spec = with_ordinal_levels(spec, ordinal_items)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if ordinal_items:
         result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 from cfa_tool.method import FitTest, Items
 from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.numbers import unit
 
 CHI = "\u03c7\u00b2"
@@ -219,7 +220,7 @@ def methods_paragraph(result) -> str:
         if departures:
             parts.append(departures)
         if d.invariant:
-            parts.append(f"Held equal across groups: {_list(list(d.invariant))}" + (
+            parts.append(f"Held equal across groups: {_list(equality_words(d.invariant))}" + (
                 f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + ".")
     else:
         parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators was estimated{groups} by "

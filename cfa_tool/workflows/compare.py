@@ -15,7 +15,7 @@ from cfa_tool.errors import OptionError, estimation_of
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import fit_moments, ordered_moments
 from cfa_tool.inference.robust import robust_parts
-from cfa_tool.language.spec import Spec
+from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.nesting import DifferenceTest, difference_test, is_nested, scaled_difference_tests
@@ -78,6 +78,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     fit_options = replace(fit_options, missing=MissingData.LISTWISE)
     specs = [load_spec(m) for m in models]
     ordinal_items = set().union(*(ordinal_items_of(spec, ordinal) for spec in specs))
+    specs = [with_ordinal_levels(spec, ordinal_items) for spec in specs]
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     names = _unique_names(specs)
     if summary_source(data):

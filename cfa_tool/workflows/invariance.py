@@ -242,7 +242,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     fit_options = replace(make_options(options), diagnostics=False)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     if spec.invariant:
-        raise OptionError("the invariance ladder sets 'invariant' itself; remove 'invariant' statements from the model file")
+        raise OptionError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "
+                          "'equal across groups' statements from the model file")
     ordinal_items = ordinal_items_of(spec, ordinal)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if ordinal_items:
