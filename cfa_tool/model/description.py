@@ -13,7 +13,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from cfa_tool.language.checks import exogenous_factors
-from cfa_tool.language.spec import Spec
+from cfa_tool.language.spec import Spec, equality_words
 from cfa_tool.model.parameters import ParameterTable
 
 
@@ -60,7 +60,7 @@ class ModelDescription:
             "fixed": [{**_ref_dict(r), "value": value} for r, value in self.fixed],
             "bounds": [{**_ref_dict(r), "lower": lo, "upper": hi} for r, lo, hi in self.bounds],
             "ordinal_items": list(self.ordinal),
-            "invariant": list(self.invariant),
+            "held_equal_across_groups": equality_words(self.invariant),
             "noninvariant": [_ref_dict(r) for r in self.noninvariant],
             "method_factors": list(self.method_factors),
         }
