@@ -38,7 +38,7 @@ def _scorer():
 
 
 views.install(_presenter)
-views.install_scorer(_scorer)
+views.install(_scorer, "scorer")
 
 
 def __getattr__(name: str):

@@ -19,19 +19,29 @@ class Presenter(Protocol):
         """An HTML fragment for a notebook."""
 
 
-_loader: Callable[[], Presenter] | None = None
+#: what the package's top module installs: the parts of higher layers that objects made below them use
+#: ("presenter": how results show themselves; "scorer": how a fit scores data with its parameters)
+_loaders: dict[str, Callable] = {}
 
 
-def install(loader: Callable[[], Presenter]) -> None:
-    """Make ``loader()`` the source of the presenter (the package's top module does this once)."""
-    global _loader
-    _loader = loader
+def install(loader: Callable[[], Presenter], name: str = "presenter") -> None:
+    """Make ``loader()`` the source of ``name`` (the package's top module does this once per name)."""
+    _loaders[name] = loader
+
+
+def _installed(name: str):
+    if name not in _loaders:  # pragma: no cover - the package's top module always installs them
+        raise RuntimeError(f"no {name} is installed; import cfa_tool first")
+    return _loaders[name]()
 
 
 def presenter() -> Presenter:
-    if _loader is None:  # pragma: no cover - the package's top module always installs one
-        raise RuntimeError("no report presenter is installed; import cfa_tool first")
-    return _loader()
+    return _installed("presenter")
+
+
+def scorer() -> Callable:
+    """The function that scores data with a fit's parameters (a workflow, above the result objects)."""
+    return _installed("scorer")
 
 
 class Presentable:
@@ -46,19 +56,3 @@ class Presentable:
 
     def __str__(self) -> str:
         return self.summary()
-
-
-_scorer_loader: Callable[[], Callable] | None = None
-
-
-def install_scorer(loader: Callable[[], Callable]) -> None:
-    """Make ``loader()`` the source of the function that scores data with a fit's parameters (the package's
-    top module installs the workflow that does it, which sits above the result objects)."""
-    global _scorer_loader
-    _scorer_loader = loader
-
-
-def scorer() -> Callable:
-    if _scorer_loader is None:  # pragma: no cover - the package's top module always installs one
-        raise RuntimeError("no scorer is installed; import cfa_tool first")
-    return _scorer_loader()
