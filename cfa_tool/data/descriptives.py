@@ -18,12 +18,15 @@ class ItemShape:
 def item_shape(rows: np.ndarray) -> ItemShape:
     """Sample skewness g1 and excess kurtosis g2 of each column from its answered values (the moment
     estimators with divisor N, type 1 of Joanes & Gill 1998), gaps (NaN) left out item by item."""
-    answered = (~np.isnan(rows)).sum(axis=0)
+    gaps = np.isnan(rows)
+    answered = len(rows) - gaps.sum(axis=0)
+    mean = np.mean if not gaps.any() else np.nanmean  # complete rows: the plain mean is several times faster
     with np.errstate(invalid="ignore", divide="ignore"):
-        centred = rows - np.nanmean(rows, axis=0)
-        m2 = np.nanmean(centred ** 2, axis=0)
-        m3 = np.nanmean(centred ** 3, axis=0)
-        m4 = np.nanmean(centred ** 4, axis=0)
+        centred = rows - mean(rows, axis=0)
+        squares = centred * centred
+        m2 = mean(squares, axis=0)
+        m3 = mean(squares * centred, axis=0)
+        m4 = mean(squares * squares, axis=0)
         skew = np.where(m2 > 0, m3 / m2 ** 1.5, np.nan)
         kurt = np.where(m2 > 0, m4 / m2 ** 2 - 3.0, np.nan)
     return ItemShape(tuple(int(a) for a in answered), tuple(float(v) for v in skew), tuple(float(v) for v in kurt))

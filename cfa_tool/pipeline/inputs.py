@@ -296,17 +296,23 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
         return fit_options, []
     if fit_options.test is FitTest.YUAN_BENTLER:  # the robust test of full-information ML
         return replace(fit_options, missing=MissingData.FULL_INFORMATION), []
-    columns = frame[list(names)]
+    gap = np.zeros(len(frame), dtype=bool)  # column by column: a sub-frame of the model variables costs more
+    for name in names:
+        values = frame[name].to_numpy()
+        gap |= np.isnan(values) if values.dtype.kind == "f" else pd.isna(values)
+    rows = len(frame)
     if group is not None and group in frame.columns:
-        columns = columns[frame[group].notna()]
-    gaps = int(columns.isna().any(axis=1).sum())
+        labelled = frame[group].notna().to_numpy()
+        gap &= labelled
+        rows = int(labelled.sum())
+    gaps = int(gap.sum())
     if not gaps:
         return replace(fit_options, missing=MissingData.LISTWISE), []
     if fit_options.test is FitTest.SATORRA_BENTLER:
         raise OptionError(f"{gaps} rows have missing answers on model variables, so the fit uses full-information ML, "
                           f"whose robust test is Yuan-Bentler (--test yuan-bentler); for the Satorra-Bentler test of the "
                           f"complete rows only, choose --missing listwise")
-    note = (f"{gaps} of {len(columns)} rows miss some answers on model variables; every answer is used by "
+    note = (f"{gaps} of {rows} rows miss some answers on model variables; every answer is used by "
             f"full-information ML (the default when answers are missing; --missing listwise would leave those rows out)")
     return replace(fit_options, missing=MissingData.FULL_INFORMATION), [note]
 
