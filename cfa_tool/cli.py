@@ -503,6 +503,10 @@ def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
                           f"'{printable(output)}'")
     outputs = [(option, getattr(args, attr, None)) for option, attr in REPORT_FILES]
     targets = check_outputs(outputs, inputs, [("--tables", getattr(args, "tables", None))])
+    if output and "--output" in targets:  # rows of data: an existing file (perhaps someone's data) is never replaced
+        from cfa_tool.output_files import check_new_file
+
+        targets["--output"] = check_new_file(targets["--output"])
     if diagram and diagram.lower().endswith(".png"):
         require_png_converter()
     if getattr(args, "dpi", None) is not None:

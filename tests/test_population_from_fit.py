@@ -68,7 +68,23 @@ def test_command_line(tmp_path, fitted):
     assert not any(v["default"] for v in population)
     bad = tmp_path / "bad.json"
     bad.write_text("{not json")
-    proc = run("simulate", str(model), "--n", "50", "--output", str(out), "--population-from", str(bad))
+    proc = run("simulate", str(model), "--n", "50", "--output", str(tmp_path / "sim2.csv"), "--population-from", str(bad))
     assert proc.returncode == 2 and "not a result written by 'cfa-tool fit --json'" in proc.stderr
     proc = run("simulate", str(model), "--n", "50", "--output", str(result), "--population-from", str(result))
     assert proc.returncode == 2 and json.loads(result.read_text())["estimates"]  # the input is never replaced
+
+
+def test_rows_of_data_never_replace_an_existing_file(tmp_path, hs_data):
+    data = tmp_path / "hs.csv"
+    hs_data.to_csv(data, index=False)
+    before = data.read_bytes()
+    model = tmp_path / "m.cfa"
+    model.write_text(THREE)
+    other = tmp_path / "someone_elses.csv"
+    other.write_text("a,b\n1,2\n")
+    for args in (["simulate", str(model), "--n", "20", "--output", str(other)],
+                 ["scores", str(model), "--data", str(data), "--output", str(other)]):
+        proc = run(*args)
+        assert proc.returncode == 2 and "exists, and this output never replaces a file" in proc.stderr, args
+        assert other.read_text() == "a,b\n1,2\n"
+    assert data.read_bytes() == before

@@ -188,7 +188,8 @@ def test_ordinal_items_get_posterior_means_and_standard_deviations(tmp_path, cap
     s = written["f_posterior_mean"]
     assert abs(s.mean()) < 4 * s.std() / np.sqrt(n)  # E[EAP] = the factor mean, 0 here
     assert (written["f_posterior_sd"] > 0).all()
-    code, _, err = _run(["scores", model, "--data", data, "--output", out, "--ordinal", "all", "--method", "bartlett"],
+    code, _, err = _run(["scores", model, "--data", data, "--output", tmp_path / "b.csv", "--ordinal", "all", "--method",
+                         "bartlett"],
                         capsys)
     assert code == 2 and "cannot be chosen" in err
 
