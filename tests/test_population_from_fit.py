@@ -88,3 +88,24 @@ def test_rows_of_data_never_replace_an_existing_file(tmp_path, hs_data):
         assert proc.returncode == 2 and "exists, and this output never replaces a file" in proc.stderr, args
         assert other.read_text() == "a,b\n1,2\n"
     assert data.read_bytes() == before
+
+
+def test_a_fit_with_gaps_serves_as_a_population(hs_data):
+    # full-information ML estimates intercepts as well; they are left out of the (centred) population
+    holed = hs_data.copy()
+    rng = np.random.default_rng(2)
+    for item in [f"x{i}" for i in range(1, 10)]:
+        holed.loc[rng.random(len(holed)) < 0.05, item] = np.nan
+    fitted = cfa_tool.fit(THREE, holed)
+    population = population_from_spec(cfa_tool.parse_model(THREE), fitted)
+    assert np.allclose(population.sigma, fitted.implied_covariance, atol=1e-10)
+
+
+def test_row_names_are_kept_as_written(tmp_path):
+    from cfa_tool.data.readers import read_table
+
+    path = tmp_path / "named.csv"
+    path.write_text(",x1,x2\n0007,1,2\n0010,2,3\n")
+    names: list = []
+    read_table(path, [], names)
+    assert names[0].tolist() == ["0007", "0010"]

@@ -311,6 +311,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
             skipinitialspace=True,
             na_values=["", "NA", "N/A", "NaN", "nan", "."],
             keep_default_na=False,
+            dtype={0: str} if has_row_names else None,  # row names as written: '0007' stays '0007'
         )
     except (pd.errors.ParserError, ValueError, OverflowError) as exc:
         detail = str(exc).strip().splitlines()[-1] if str(exc).strip() else "cannot be parsed"

@@ -207,8 +207,10 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
             raise OptionError(f"{source}: an estimate row lacks its kind, variables or value") from None
     table = build_parameter_table(spec)
     known = {key(par.kind, par.variables) for par in table.parameters}
+    # intercepts and factor means (a fit with gaps or groups estimates them) are not part of a population
+    # whose items are simulated centred: they are left out, not taken for the parameters of another model
     extra = [f"{kind}({', '.join(names)})" for (kind, names), (_, free) in value_of.items() if free and
-             (kind, names) not in known]
+             (kind, names) not in known and kind not in ("intercept", "mean")]
     if extra:
         raise OptionError(f"{source} estimates {', '.join(extra[:3])}, which this model does not have: it is the "
                           f"result of a different model")
