@@ -51,6 +51,15 @@ class EstimateRow:
         )
 
 
+def _percent_below_all(share: float) -> str:
+    """A share below 1 as a percentage that never reads as 100% (99.96% is '99.96%', not '100%')."""
+    for digits in (0, 1, 2, 3):
+        text = f"{100 * share:.{digits}f}"
+        if float(text) < 100:
+            return text + "%"
+    return "under 100%"
+
+
 @dataclass(frozen=True)
 class CheckResult:
     """What ``check`` found: the parsed model and how the data cover its variables."""
@@ -75,7 +84,7 @@ class CheckResult:
         low = sorted((v, k) for k, v in self.coverage.items() if v < 1)
         if low:
             rest = "; every other item 100%" if len(low) < len(self.coverage) else ""
-            lines.append("Coverage (share of rows answering): " + ", ".join(f"{k} {100 * v:.0f}%" for v, k in low[:10])
+            lines.append("Coverage (share of rows answering): " + ", ".join(f"{k} {_percent_below_all(v)}" for v, k in low[:10])
                          + (f", and {len(low) - 10} more below 100%" if len(low) > 10 else "") + rest + ".")
         return "\n".join(lines)
 

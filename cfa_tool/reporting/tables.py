@@ -354,7 +354,7 @@ def residual_table(result, group: int = 0) -> ReportTable | None:
 def group_table(result) -> ReportTable:
     rows = [[str(g.label), str(g.data.n_obs), num(g.chi_square), unit(g.srmr)] for g in result.groups]
     return _table("groups", f"Groups ({result.group_column})",
-                  [("Group", "l"), ("N", "r"), ("Share of chi-square", "r"), ("SRMR", "r")], rows)
+                  [("Group", "l"), ("N", "r"), ("Contribution to chi-square", "r"), ("SRMR", "r")], rows)
 
 
 def missing_table(result) -> ReportTable | None:
@@ -511,11 +511,11 @@ def case_table(result, group: int = 0) -> ReportTable | None:
     ids = [[c.id or ""] if named else [] for c in cases[:5]]
     return _table(f"cases_{group}", "Rows that contribute most to the chi-square",
                   [("Data row", "r")] + ([("Id", "l")] if named else [])
-                  + [("Share of chi-square", "r"), ("Squared Mahalanobis distance", "r"), ("p", "r")],
+                  + [("Contribution to chi-square", "r"), ("Squared Mahalanobis distance", "r"), ("p", "r")],
                   [[str(c.row), *i, num(c.chi_square_share, 2), num(c.mahalanobis, 2), p_value(c.p_value)]
                    for c, i in zip(cases[:5], ids)],
-                  "Each row's share sums over all rows to the chi-square; large shares and distances point at rows worth checking.",
-                  values=(["Data row"] + (["Id"] if named else []) + ["Share of chi-square", "Squared Mahalanobis distance", "p"],
+                  "Each row's contribution (in chi-square units; negative for a row the model fits better than the saturated model does) sums over all rows to the chi-square; large contributions and distances point at rows worth checking.",
+                  values=(["Data row"] + (["Id"] if named else []) + ["Contribution to chi-square", "Squared Mahalanobis distance", "p"],
                           [[c.row, *i, c.chi_square_share, c.mahalanobis, c.p_value] for c, i in zip(cases[:5], ids)]))
 
 
