@@ -110,6 +110,13 @@ def test_split_halves_are_disjoint_and_both_are_reported(tmp_path, capsys):
     assert split["confirmation"]["n_obs"] == len(second)
     assert "the confirmation half (150 rows) was not used to choose the model" in " ".join(text.split())
     assert "Confirmation half: the draft model fitted" in text
+    from cfa_tool.reporting.explore_report import confirmation_tables
+    from cfa_tool.workflows.explore import explore
+
+    result = explore(HS_FILE, items="x1..x9", split=11)
+    shown = [t.title for t in confirmation_tables(result)]
+    factors = [f for f in result.split.confirmation.latent]
+    assert all(any(title.startswith(f"Factor {f}") for title in shown) for f in factors)  # every factor, not the first
     code2, _, _ = _run(["explore", "--data", HS_FILE, "--items", "x1..x9", "--split", "11", "--json", tmp_path / "b.json"],
                        capsys)
     assert json.loads((tmp_path / "b.json").read_text())["split"]["exploration_rows"] == split["exploration_rows"]

@@ -162,7 +162,8 @@ def confirmation_tables(result) -> list[ReportTable]:
     if fit is None:
         return []
     out = [T.fit_table(fit)] if fit.fit is not None and fit.converged else []
-    return out + T.estimate_tables(fit)[:1]
+    # every factor's block and the factors' matrix (the loadings of the confirmed model)
+    return out + [t for t in T.estimate_tables(fit) if t.key.split("_")[0] in ("factor", "factors")]
 
 
 def render_explore(result, console) -> None:
