@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import numpy as np
 import pandas as pd
 import pytest
@@ -309,3 +311,15 @@ def test_excel_dates_are_not_numbers(tmp_path, hs_items):
     frame.to_excel(path, index=False)
     with pytest.raises(DataError, match="column 'x1' holds dates or times"):
         cfa_tool.fit(THREE_FACTORS, path)
+
+
+def test_summary_csv_in_utf16_and_the_old_form_in_a_csv(tmp_path, hs_items, hs_three):
+    cov = np.cov(hs_items[ITEMS].to_numpy().T)
+    text = Path(_lower_triangle_file(tmp_path, cov, 301, ITEMS)).read_text()
+    wide = tmp_path / "wide.csv"
+    wide.write_bytes(text.encode("utf-16"))  # what a spreadsheet's 'Unicode text' writes, with its byte-order mark
+    assert cfa_tool.fit(THREE_FACTORS, str(wide)).fit.chi_square == pytest.approx(hs_three.fit.chi_square, rel=1e-9)
+    old = tmp_path / "old.csv"
+    old.write_text("variables: a b c\nobservations: 100\nmatrix: covariance\nvalues:\n1\n.5 1\n.4 .3 1\n")
+    with pytest.raises(DataError, match="earlier keyword form of a summary-statistics file"):
+        cfa_tool.fit("factor f: a, b, c\n", str(old))

@@ -86,11 +86,14 @@ def holds_summary(path: str | Path) -> bool:
         if not stat.S_ISREG(os.stat(path).st_mode):
             return False
         with open(path, "rb") as handle:
-            head = handle.read(4096).decode("utf-8-sig", errors="replace")
+            raw = handle.read(4096)
     except OSError:
         return False
+    head = utf16_text(raw[: len(raw) - len(raw) % 2]) or raw.decode("utf-8-sig", errors="replace")
     for line in text_lines(normalise_line_ends(head)):
         if line.strip() and not line.lstrip().startswith("#"):
+            if line.partition(":")[0].strip().lower() in OLD_KEYS and ":" in line:
+                return True  # the keyword form of earlier versions: read, to say how it is written now
             first = re.split(r"[,;\t]", line, maxsplit=1)[0].strip().strip('"').lower()
             return first in KINDS
     return False
