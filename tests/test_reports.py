@@ -260,3 +260,21 @@ def test_workflow_commands_fit_80_columns(tmp_path, hs_data, monkeypatch):
         proc = run(*args)
         assert proc.returncode == 0, proc.stderr
         assert max(len(line) for line in proc.stdout.splitlines()) <= 80, args[0]
+
+
+def test_every_csv_table_of_a_fit_holds_full_precision_numbers(demo_result):
+    # no table's data file may hold a number rounded for reading: each numeric cell parses as a float and
+    # reliability, distinctness and modification tables carry the values themselves
+    from cfa_tool.reporting import tables as T
+    from cfa_tool.reporting.text_formats import csv_table
+
+    omega = demo_result.groups[0].reliability[0].omega
+    frame = pd.read_csv(pd.io.common.StringIO(csv_table(T.reliability_table(demo_result))))
+    assert frame["Omega"].iloc[0] == omega
+    mi = demo_result.reported_modification_indices()[0]
+    frame = pd.read_csv(pd.io.common.StringIO(csv_table(T.modification_table(demo_result))))
+    assert frame["Index"].iloc[0] == mi.index
+    distinct = T.distinct_table(demo_result)
+    if distinct is not None:
+        frame = pd.read_csv(pd.io.common.StringIO(csv_table(distinct)))
+        assert pd.api.types.is_float_dtype(frame["AVE (first)"])

@@ -391,8 +391,12 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
         note += (f" {len(beyond)} expected residual correlation{'s are' if len(beyond) > 1 else ' is'} beyond +/-1: the "
                  "expected change is a linear approximation that fails this far from the current estimate, so only a "
                  "refit shows the value the parameter would take.")
+    values = [[m.kind, ", ".join(m.variables), m.group or "", m.index, m.expected_change, m.standardized_expected_change]
+              for m in shown]
     return _table("modification", title, [("Parameter that could be freed", "l"), ("Index", "r"), ("Expected change", "r"),
-                                          ("Standardized", "r")], body, note)
+                                          ("Standardized", "r")], body, note,
+                  values=(["Kind", "Variables", "Group", "Index", "Expected change", "Standardized expected change"],
+                          values))
 
 
 def reliability_table(result, group: int = 0) -> ReportTable | None:
@@ -416,7 +420,10 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
                  f"coefficients and take no part in the Fornell-Larcker and HTMT comparisons.")
     return _table(f"reliability_{group}", "How reliable are the scale scores?" + (" (ordinal)" if ordinal else ""),
                   [("Factor", "l"), ("Items", "r"), ("Omega", "r"), ("Omega total", "r"), ("Alpha", "r"),
-                   ("Composite reliability", "r")], body, _unusable(result) + note, _all_if_unusable(result, body))
+                   ("Composite reliability", "r")], body, _unusable(result) + note, _all_if_unusable(result, body),
+                  values=(["Factor", "Items", "Omega", "Omega total", "Alpha", "Composite reliability"],
+                          [[r.factor, len(r.items), r.omega, r.omega_total, r.alpha, r.composite_reliability]
+                           for r in rows]))
 
 
 def _unusable(result) -> str:
@@ -443,7 +450,7 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
             correlations[frozenset(r.variables)] = r
     unit_variance = {r.variables[0] for r in result.estimates
                      if r.kind == "factor_variance" and r.group == g.label and not r.free and r.estimate == 1.0}
-    body, reasons = [], []
+    body, reasons, numbers = [], [], []
     names = list(traits)
     for i, a in enumerate(names):
         for b in names[i + 1:]:
@@ -460,6 +467,8 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
             holds = ave_a ** 0.5 > abs(r) and ave_b ** 0.5 > abs(r)
             body.append([a, b, unit(r, 2), interval, ratio, f"{unit(ave_a, 2)} / {unit(ave_b, 2)}",
                          "yes" if holds else "no"])
+            lo, hi = (row.ci95 if interval else (None, None))
+            numbers.append([a, b, r, lo, hi, None if h is None else h.ratio, ave_a, ave_b, "yes" if holds else "no"])
     note = ("HTMT: heterotrait-monotrait ratio of the keyed items, in absolute value (Henseler, Ringle & Sarstedt "
             "2015); common practice reads values above .85 (or .90) as a sign that two factors are not distinct. "
             "sqrt(AVE) > |r|: both factors' average variance extracted exceeds their squared correlation (Fornell & "
@@ -473,7 +482,9 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
         columns.pop(3)
         body = [row[:3] + row[4:] for row in body]
     return _table(f"distinct_{group}", "Are the factors distinct?", columns, body, _unusable(result) + note,
-                  _all_if_unusable(result, body))
+                  _all_if_unusable(result, body),
+                  values=(["Factor", "Factor", "r", "95% CI lower", "95% CI upper", "HTMT", "AVE (first)", "AVE (second)",
+                           "sqrt(AVE) > |r|"], numbers))
 
 
 def keying_sentence(rows) -> str:
