@@ -57,3 +57,22 @@ def test_a_filtered_fit_keeps_the_ids_of_the_rows_it_analysed(tmp_path, capsys):
     for case in cases:
         assert raw["school"].iloc[case["row"] - 1] == "Grant-White"
         assert case["id"] == str(raw["id"].iloc[case["row"] - 1])
+
+
+def test_an_id_column_is_kept_as_written(tmp_path, hs_data):
+    # ids such as '0007' are text: read as numbers they would become 7
+    import cfa_tool
+
+    frame = hs_data[[f"x{i}" for i in range(1, 10)]].copy()
+    frame.insert(0, "code", [f"{k:04d}" for k in range(1, len(frame) + 1)])
+    frame.iloc[3, 0] = None
+    path = tmp_path / "coded.csv"
+    frame.to_csv(path, index=False)
+    model = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+    scored = cfa_tool.scores(model, str(path), id_column="code")
+    ids = scored.table["code"].tolist()
+    assert ids[0] == "0001" and ids[300] == "0301" and pd.isna(ids[3])
+    assert scored.csv().splitlines()[4].startswith(",")  # a missing id is an empty cell, not the text 'nan'
+    fitted = cfa_tool.fit(model, str(path), id_column="code")
+    named = [c.id for c in fitted.groups[0].influential_cases]
+    assert all(i is None or (len(i) == 4 and i.isdigit()) for i in named)

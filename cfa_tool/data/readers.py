@@ -41,8 +41,10 @@ SPSS_SUFFIXES = (".sav", ".zsav", ".por")
 STATA_SUFFIXES = (".dta",)
 
 
-def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = ()) -> LoadedData:
-    """Any supported file -> LoadedData; ``missing_codes`` are values that mean 'no answer'."""
+def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
+              text_columns: tuple[str, ...] = ()) -> LoadedData:
+    """Any supported file -> LoadedData; ``missing_codes`` are values that mean 'no answer'; ``text_columns``
+    (an id column) are read from delimited text as written ('007' stays '007')."""
     path = Path(path)
     suffix = path.suffix.lower()
     binary = suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES
@@ -63,7 +65,7 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     else:
         notes = []
         names = []
-        loaded = LoadedData(read_table(path, notes, names), str(path), notes=tuple(notes),
+        loaded = LoadedData(read_table(path, notes, names, text_columns), str(path), notes=tuple(notes),
                             row_names=names[0] if names else None)
     if missing_codes:
         frame = loaded.frame.copy()
@@ -271,7 +273,8 @@ def _shown_delimiter(d: str) -> str:
     return {"\t": "tab", ",": ",", ";": ";", "|": "|"}[d]
 
 
-def read_table(path: str | Path, notes: list[str] | None = None, row_names: list | None = None) -> pd.DataFrame:
+def read_table(path: str | Path, notes: list[str] | None = None, row_names: list | None = None,
+               text_columns: tuple[str, ...] = ()) -> pd.DataFrame:
     """A delimited text file as a DataFrame.  ``notes`` receives what was done to read it that the
     report should mention (empty fields dropped at the ends of rows, a row-name column); ``row_names``
     receives the row-name column's values (a Series of text) when the file has one."""
@@ -311,7 +314,9 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
             skipinitialspace=True,
             na_values=["", "NA", "N/A", "NaN", "nan", "."],
             keep_default_na=False,
-            dtype={0: str} if has_row_names else None,  # row names as written: '0007' stays '0007'
+            # row names and id columns as written: '0007' stays '0007'
+            dtype={k: str for k, name in enumerate(header) if (k == 0 and has_row_names) or name in text_columns}
+            or None,
         )
     except (pd.errors.ParserError, ValueError, OverflowError) as exc:
         detail = str(exc).strip().splitlines()[-1] if str(exc).strip() else "cannot be parsed"

@@ -96,7 +96,8 @@ def load_frame(data: pd.DataFrame | str | Path, sheet: str | None = None,
     return loaded.frame, loaded.source
 
 
-def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = ()) -> LoadedData:
+def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
+              text_columns: tuple[str, ...] = ()) -> LoadedData:
     missing_codes = missing_codes_option(missing_codes)
     if isinstance(data, pd.DataFrame):
         frame = data
@@ -107,7 +108,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
-        return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes))
+        return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -129,10 +130,11 @@ def keep_option(keep) -> list[str]:
     return list(keep)
 
 
-def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=()) -> tuple[Spec, LoadedData, list[str]]:
+def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
+                           text_columns: tuple[str, ...] = ()) -> tuple[Spec, LoadedData, list[str]]:
     keep = keep_option(keep)
     spec = load_spec(model)
-    loaded = load_data(data, sheet, missing_codes)
+    loaded = load_data(data, sheet, missing_codes, text_columns)
     frame = loaded.frame
     columns = [str(c) for c in frame.columns]
     if len(set(columns)) != len(columns):
@@ -241,7 +243,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         return _described(replace(result, warnings=tuple(notes) + result.warnings), spec, None)
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
-    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
+                                                 (id_column,) if isinstance(id_column, str) else ())
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     return named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator),

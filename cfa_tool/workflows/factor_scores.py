@@ -165,7 +165,7 @@ class ScoreResult(Presentable):
         """The scores as CSV text: full precision, empty cells where there is no score."""
         guarded = self.table.set_axis([csv_cell(c) for c in self.table.columns], axis=1)
         if self.id_name is not None:
-            guarded.iloc[:, 0] = guarded.iloc[:, 0].map(lambda v: None if v is None else csv_cell(v))
+            guarded.iloc[:, 0] = guarded.iloc[:, 0].map(lambda v: None if v is None or pd.isna(v) else csv_cell(v))
         return guarded.to_csv(index=False, na_rep="", float_format="%.10g", lineterminator="\n")
 
 
@@ -198,7 +198,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     if not isinstance(standard_errors, bool):
         raise OptionError("standard_errors must be True or False")
     fit_options = api.make_options(options)
-    spec, loaded, notes = api.read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    spec, loaded, notes = api.read_inputs_with_notes(model, data, sheet, missing_codes, keep,
+                                                     (id_column,) if isinstance(id_column, str) else ())
     frame, source = loaded.frame, loaded.source
     read_frame = loaded.read_frame if loaded.read_frame is not None else frame
     read_index = read_frame.index
@@ -333,7 +334,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     from cfa_tool.data.matching import check_columns
     from cfa_tool.data.row_ids import duplicate_note, row_ids
 
-    loaded = api.load_data(data, sheet, missing_codes)
+    loaded = api.load_data(data, sheet, missing_codes, (id_column,) if isinstance(id_column, str) else ())
     read_frame, source = loaded.frame.set_axis([str(c) for c in loaded.frame.columns], axis=1), loaded.source
     if not read_frame.index.is_unique:
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index)")
