@@ -196,7 +196,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
         raise DataError(f"{source}: no row has answers on all {p} model variables, so nothing is left to analyse")
     if n <= p:
         raise DataError(
-            f"{source}: {n} complete rows for {p} variables; the covariance matrix needs more rows than variables "
+            f"{source}: {n} complete {'row' if n == 1 else 'rows'} for {p} variables; the covariance matrix needs more rows than variables "
             f"(and a factor analysis far more)"
         )
     means = data.mean(axis=0)

@@ -162,7 +162,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
     data = values[complete]
     n, p = data.shape
     if n <= p:
-        raise DataError(f"{source}{where}: {n} complete rows for {p} items; more rows are needed")
+        raise DataError(f"{source}{where}: {n} complete {'row' if n == 1 else 'rows'} for {p} items; more rows are needed")
     codes = np.zeros_like(data, dtype=int)
     categories, thresholds, threshold_if = [], [], []
     for j, name in enumerate(names):

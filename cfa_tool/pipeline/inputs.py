@@ -237,7 +237,10 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         else:
             moments, notes = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
-        if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is not FitTest.NORMAL:
+        if fit_options.missing is not None:  # a matrix has no rows, so how rows with gaps are handled cannot apply
+            raise OptionError("summary statistics hold no rows, so the handling of missing answers (--missing) cannot "
+                              "apply; remove the option")
+        if fit_options.test is not FitTest.NORMAL:
             raise OptionError("summary statistics allow only the normal-theory test with complete data")
         result = converged(fit_moments(spec, moments, replace(fit_options, diagnostics=False)))
         return _described(replace(result, warnings=tuple(notes) + result.warnings), spec, None)
