@@ -41,6 +41,20 @@ def write_reports(args: argparse.Namespace, files: list[tuple[str, object, str]]
             say(args, message)
 
 
+def report_files(args: argparse.Namespace, result, html, markdown) -> list[tuple[str, object, str]]:
+    """(option, content, message) of the JSON, HTML and Markdown reports asked for; ``html`` and ``markdown``
+    make the command's report in those formats."""
+    from cfa_tool.reporting.json_report import to_json
+
+    files = []
+    for option, wanted, make, what in (("--json", args.json, to_json, "JSON result"),
+                                       ("--html", args.html, html, "HTML report"),
+                                       ("--markdown", args.markdown, markdown, "Markdown report")):
+        if wanted:
+            files.append((option, make(result), f"{what} written to {wanted}"))
+    return files
+
+
 def add_report_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--json", metavar="PATH", help="also write the result as JSON to PATH ('-' for standard output only)")
     p.add_argument("--html", metavar="PATH", help="write a self-contained HTML report")

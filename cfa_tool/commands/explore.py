@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.commands.common import add_report_options, check_files, require_suffix, say, write_reports
+from cfa_tool.commands.common import add_report_options, check_files, report_files, require_suffix, say, write_reports
 
 
 def add_parser(sub) -> None:
@@ -41,7 +41,6 @@ def run(args: argparse.Namespace) -> int:
     from cfa_tool.language.parser import MODEL_SUFFIX
     from cfa_tool.output_files import check_new_file
     from cfa_tool.reporting.explore_report import explore_html_report, explore_markdown, render_explore
-    from cfa_tool.reporting.json_report import to_json
     from cfa_tool.workflows.explore import explore
 
     require_suffix("--draft", args.draft, MODEL_SUFFIX, "model files")
@@ -53,15 +52,8 @@ def run(args: argparse.Namespace) -> int:
                      extraction=args.extraction, ordinal=cli._ordinal_arg(args.ordinal), split=args.split,
                      sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
                      replications=args.replications, seed=args.seed)
-    files = []
-    if args.draft:
-        files.append(("--draft", result.draft_text, f"Draft model written to {args.draft}"))
-    if args.json:
-        files.append(("--json", to_json(result), f"JSON result written to {args.json}"))
-    if args.html:
-        files.append(("--html", explore_html_report(result), f"HTML report written to {args.html}"))
-    if args.markdown:
-        files.append(("--markdown", explore_markdown(result), f"Markdown report written to {args.markdown}"))
+    files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
+    files += report_files(args, result, explore_html_report, explore_markdown)
     if not args._stdout_taken:
         render_explore(result, cli._console())
     write_reports(args, files)

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.commands.common import add_report_options, check_files, require_suffix, say, write_reports
+from cfa_tool.commands.common import add_report_options, check_files, report_files, require_suffix, say, write_reports
 
 
 def add_parser(sub) -> None:
@@ -57,7 +57,6 @@ def run(args: argparse.Namespace) -> int:
 
     from cfa_tool import cli
     from cfa_tool.errors import OptionError
-    from cfa_tool.reporting.json_report import to_json
     from cfa_tool.reporting.score_report import render_scores, scores_html_report, scores_markdown
     from cfa_tool.workflows.factor_scores import score_with_saved_fit, scores
 
@@ -84,12 +83,7 @@ def run(args: argparse.Namespace) -> int:
                         ordinal_estimator=args.ordinal_estimator, missing=args.missing,
                         max_iterations=args.max_iterations)
     files = [("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")]
-    if args.json:
-        files.append(("--json", to_json(result), f"JSON result written to {args.json}"))
-    if args.html:
-        files.append(("--html", scores_html_report(result), f"HTML report written to {args.html}"))
-    if args.markdown:
-        files.append(("--markdown", scores_markdown(result), f"Markdown report written to {args.markdown}"))
+    files += report_files(args, result, scores_html_report, scores_markdown)
     if not args._stdout_taken:
         render_scores(result, cli._console())
     write_reports(args, files)
