@@ -260,3 +260,16 @@ def test_scores_from_a_saved_fit_equal_those_of_the_fit_result(tmp_path, model_f
     code, _, err = _run(["scores", other_model, "--data", other, "--from-fit", saved, "--output", tmp_path / "no.csv"],
                         capsys)
     assert code == 2 and "not of the model" in err and not (tmp_path / "no.csv").exists()
+
+
+def test_a_row_without_a_group_is_counted_once(tmp_path, hs_data):
+    import cfa_tool
+
+    model = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\n"
+    fitted = cfa_tool.fit(model, hs_data, group="school")
+    other = hs_data.copy()
+    other.loc[other.index[0], "school"] = None
+    scored = fitted.scores(other)
+    reasons = {reason: counts for reason, _, counts in scored.unscored}
+    assert max(reasons.get("no value in the group column", (0,))) == 1
+    assert max(reasons.get("a group the fit does not have", (0,))) == 0

@@ -369,7 +369,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                 counts[key] = counts.get(key, np.zeros(m, dtype=np.int64)) + np.asarray(c, dtype=np.int64)
     for reason, number in ((RowLeftOut.FILTERED.value, n - len(frame)),
                            (RowLeftOut.NO_GROUP.value, int(pd.isna(group_of_row).sum()) if group is not None else 0),
-                           (RowLeftOut.UNKNOWN_GROUP.value, int(sum(1 for v in group_of_row if v is not None
+                           (RowLeftOut.UNKNOWN_GROUP.value, int(sum(1 for v in group_of_row if not pd.isna(v)
                                                                     and v not in labels)) if group is not None else 0)):
         if number:
             for meth in chosen:
