@@ -323,3 +323,12 @@ def test_summary_csv_in_utf16_and_the_old_form_in_a_csv(tmp_path, hs_items, hs_t
     old.write_text("variables: a b c\nobservations: 100\nmatrix: covariance\nvalues:\n1\n.5 1\n.4 .3 1\n")
     with pytest.raises(DataError, match="earlier keyword form of a summary-statistics file"):
         cfa_tool.fit("factor f: a, b, c\n", str(old))
+
+
+def test_tab_separated_utf16_with_decimal_commas(tmp_path, hs_data, hs_three):
+    # what a spreadsheet's 'Unicode text' export writes in a decimal-comma locale: the same fit as the CSV
+    items = [f"x{i}" for i in range(1, 10)]
+    text = hs_data[items].to_csv(sep="\t", index=False).replace(".", ",")
+    path = tmp_path / "unicode.txt"
+    path.write_bytes(text.encode("utf-16"))
+    assert cfa_tool.fit(THREE_FACTORS, str(path)).fit.chi_square == pytest.approx(hs_three.fit.chi_square, rel=1e-9)

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import csv
 import io
+import re
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
@@ -310,7 +311,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
             names=list(range(widest)),
             usecols=list(range(len(header))),
             index_col=False,
-            decimal="," if delimiter == ";" else ".",
+            decimal=_decimal_mark(text, delimiter),
             skipinitialspace=True,
             na_values=["", "NA", "N/A", "NaN", "nan", "."],
             keep_default_na=False,
@@ -332,6 +333,18 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         if notes is not None:
             notes.append(f"{path}: the first column has no name in the header and was read as row names, not as data")
     return frame
+
+
+def _decimal_mark(text: str, delimiter: str) -> str:
+    """',' with semicolons (as spreadsheets in decimal-comma locales write CSV), and with tabs when the numbers
+    are written with decimal commas and never with points (their 'Unicode text' export); '.' otherwise."""
+    if delimiter == ";":
+        return ","
+    if delimiter == "\t":
+        sample = text[:200_000]
+        if re.search(r"\d,\d", sample) and not re.search(r"\d\.\d", sample):
+            return ","
+    return "."
 
 
 def _split_row_names(frame: pd.DataFrame, out: list | None) -> pd.DataFrame:
