@@ -271,7 +271,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
 
     if api.summary_source(data):
         raise OptionError(f"'{data}' holds summary statistics; explore needs the rows of answers (a correlation "
-                          f"matrix alone is analysed with cfa_tool.exploration)")
+                          f"matrix alone can be explored from Python: 'from cfa_tool.exploration import "
+                          f"explore_correlations, from_correlations')")
     loaded = api.load_data(data, sheet, missing_codes)
     frame, source = loaded.frame, loaded.source
     columns = [str(c) for c in frame.columns]
