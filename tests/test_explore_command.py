@@ -170,3 +170,12 @@ def test_a_heywood_case_comes_first_in_every_view(tmp_path, capsys):
     assert text.lstrip().startswith("┏") or text.lstrip().startswith("╭")  # the boxed notice before anything
     assert html.read_text().index('id="problems"') < html.read_text().index("<h1>")
     assert md.read_text().startswith("## Check before interpreting this solution")
+
+
+def test_an_id_column_is_not_taken_for_an_item(hs_data):
+    from cfa_tool.workflows.explore import explore
+
+    result = explore(hs_data, factors=3)
+    assert "id" not in result.to_dict()["items"]
+    note = next(n for n in result.notes if n.startswith("Items:"))
+    assert "Left out as row numbers or ids (every value a different whole number): id." in note

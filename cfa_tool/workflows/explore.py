@@ -229,6 +229,14 @@ def _numeric_columns(frame: pd.DataFrame) -> tuple[str, ...]:
                  pd.api.types.is_bool_dtype(frame[c]))
 
 
+def _looks_like_row_ids(column: pd.Series) -> bool:
+    """A column whose values are all different whole numbers: an id or a row number, not answers to an item."""
+    values = column.dropna().to_numpy()
+    if len(values) < 10 or not np.all(np.mod(values, 1) == 0):
+        return False
+    return len(np.unique(values)) == len(values)
+
+
 def _factor_choice(factors) -> int | None:
     if factors is None or (isinstance(factors, str) and factors.strip() == "auto"):
         return None
@@ -287,8 +295,13 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
         notes += filter_notes
     chosen = item_names(items, columns, source)
     if chosen is None:
-        chosen = _numeric_columns(frame)
-        notes.append(f"Items: every column of {source} that holds numbers ({len(chosen)}); choose them with --items.")
+        numeric = _numeric_columns(frame)
+        ids = [c for c in numeric if _looks_like_row_ids(frame[c])]
+        chosen = tuple(c for c in numeric if c not in ids)
+        notes.append(f"Items: every column of {source} that holds numbers ({len(chosen)}); choose them with --items."
+                     + (f" Left out as row numbers or ids (every value a different whole number): {', '.join(ids)}."
+                        if ids else "")
+                     + " Check that no other column (age, grade, a code) is among the items.")
     requested = _factor_choice(factors)
     rotation_method = _enum(RotationMethod, rotation, "rotation")
     extraction_method = _enum(ExtractionMethod, extraction, "extraction")
