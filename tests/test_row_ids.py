@@ -76,3 +76,15 @@ def test_an_id_column_is_kept_as_written(tmp_path, hs_data):
     fitted = cfa_tool.fit(model, str(path), id_column="code")
     named = [c.id for c in fitted.groups[0].influential_cases]
     assert all(i is None or (len(i) == 4 and i.isdigit()) for i in named)
+
+
+def test_repeated_ids_are_noted_by_fit(tmp_path, hs_data):
+    import cfa_tool
+
+    frame = hs_data[[f"x{i}" for i in range(1, 10)]].copy()
+    frame.insert(0, "code", ["007"] * len(frame))
+    path = tmp_path / "same.csv"
+    frame.to_csv(path, index=False)
+    result = cfa_tool.fit("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n",
+                          str(path), id_column="code")
+    assert any("300 rows repeat an id used by an earlier row (e.g. '007')" in w for w in result.warnings)

@@ -15,7 +15,7 @@ from cfa_tool.data.matching import check_columns, check_declared_ranges
 from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
-from cfa_tool.data.row_ids import ids_by_row_number, row_ids
+from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
 from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
@@ -250,8 +250,10 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                                                  (id_column,) if isinstance(id_column, str) else ())
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
-    return named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator),
-                       ids_by_row_number(ids, frame))
+    result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator),
+                         ids_by_row_number(ids, frame))
+    repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
+    return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 
 
 def named_cases(result: FitResult, ids: dict) -> FitResult:
