@@ -27,6 +27,17 @@ def _shown(value: object) -> str:
     return text if len(text) <= 40 else text[:37] + "..."
 
 
+def choice(kind, value: object, name: str):
+    """A member of the enumeration ``kind``, given as the member or as its value (the word users type);
+    anything else is an OptionError naming the words that are allowed."""
+    if isinstance(value, kind):
+        return value
+    try:
+        return kind(value)
+    except (ValueError, TypeError):
+        raise OptionError(f"{name} must be one of {', '.join(str(m.value) for m in kind)}, not {_shown(value)}") from None
+
+
 def whole_number(name: str, value: object, minimum: int, maximum: int | None = None) -> int:
     """An integer (or a float with no fractional part) within [minimum, maximum]."""
     if isinstance(value, bool) or not isinstance(value, numbers.Real):

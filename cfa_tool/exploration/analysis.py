@@ -62,13 +62,7 @@ def _checked(settings: ExploreSettings, p: int) -> ExploreSettings:
     from cfa_tool import options
     from cfa_tool.errors import OptionError
 
-    extraction = settings.extraction
-    if not isinstance(extraction, ExtractionMethod):
-        try:
-            extraction = ExtractionMethod(extraction)
-        except ValueError:
-            raise OptionError(f"the extraction must be one of {', '.join(m.value for m in ExtractionMethod)}, not "
-                              f"{options._shown(extraction)}") from None
+    extraction = options.choice(ExtractionMethod, settings.extraction, "the extraction")
     factors = None if settings.factors is None else check_factor_count(settings.factors, p)
     count = settings.count if settings.count is not None else factors is None
     if factors is None and not count:

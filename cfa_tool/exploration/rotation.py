@@ -80,13 +80,7 @@ class RotationSpec:
             if self.target is not None and items is not None and factors is not None:
                 _check_target_shape(self.target, items, factors)
             return self
-        method = self.method
-        if not isinstance(method, RotationMethod):
-            try:
-                method = RotationMethod(method)
-            except ValueError:
-                raise OptionError(f"the rotation must be one of {', '.join(m.value for m in RotationMethod)}, not "
-                                  f"{options._shown(method)}") from None
+        method = options.choice(RotationMethod, self.method, "the rotation")
         name = method.value
         if method in _ORTHOGONAL_ONLY and self.oblique:
             raise OptionError(f"{name} is an orthogonal rotation; for correlated factors choose quartimin, oblimin, "

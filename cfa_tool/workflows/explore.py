@@ -248,16 +248,6 @@ def _factor_choice(factors) -> int | None:
     return factors
 
 
-def _enum(kind, value, what: str):
-    if isinstance(value, kind):
-        return value
-    try:
-        return kind(value)
-    except ValueError:
-        raise OptionError(f"the {what} must be one of {', '.join(m.value for m in kind)}, not "
-                          f"'{printable(str(value))}'") from None
-
-
 def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = RotationMethod.QUARTIMIN,
             extraction: str | ExtractionMethod = ExtractionMethod.MAXIMUM_LIKELIHOOD, ordinal=None,
             split: int | None = None, sheet: str | None = None, missing_codes=(), keep=(), replications: int = 100,
@@ -303,8 +293,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
                         if ids else "")
                      + " Check that no other column (age, grade, a code) is among the items.")
     requested = _factor_choice(factors)
-    rotation_method = _enum(RotationMethod, rotation, "rotation")
-    extraction_method = _enum(ExtractionMethod, extraction, "extraction")
+    rotation_method = options.choice(RotationMethod, rotation, "the rotation")
+    extraction_method = options.choice(ExtractionMethod, extraction, "the extraction")
     if rotation_method is RotationMethod.TARGET and target is None:
         raise OptionError("target rotation needs a target matrix (loadings to aim at, NaN where unspecified), which the "
                           "Python entry point takes (target=...); choose another rotation here")

@@ -68,15 +68,6 @@ class DecisionRule(enum.Enum):
     BOTH = ("both", "both the chi-square difference test (p >= alpha) and the change-in-fit guides (Cheung & Rensvold "
                     "2002; Chen 2007)")
 
-    @classmethod
-    def parse(cls, value) -> "DecisionRule":
-        if isinstance(value, cls):
-            return value
-        for member in cls:
-            if member.value == value:
-                return member
-        raise OptionError(f"the decision rule must be one of {', '.join(m.value for m in cls)}, not '{value}'")
-
 
 #: why the partial-invariance search stopped at a step
 STOP_HOLDS = "the step holds"
@@ -234,7 +225,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                           f"{type(group).__name__}")
     if partial not in PARTIAL_CHOICES:
         raise OptionError(f"partial must be one of {', '.join(PARTIAL_CHOICES)}, not '{partial}'")
-    rule = DecisionRule.parse(decide_by)
+    rule = check.choice(DecisionRule, decide_by, "the decision rule")
     if alpha is not None and rule is DecisionRule.FIT_CHANGE:
         raise OptionError("alpha is the level of the difference tests, which the fit-change rule does not use; give "
                           "alpha only with --decide-by difference-test or both")
