@@ -478,19 +478,9 @@ def _inputs(args: argparse.Namespace) -> list[str]:
     return [n for n in names if n]
 
 
-def _special_file(path: str) -> bool:
-    """A device or a named pipe (written directly, whatever its name)."""
-    import stat
-
-    try:
-        mode = Path(path).stat().st_mode
-    except OSError:
-        return False
-    return stat.S_ISCHR(mode) or stat.S_ISFIFO(mode)
-
-
 def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     """Every output of the run checked before any work (see cfa_tool.output_files)."""
+    from cfa_tool.commands.common import require_suffix
     from cfa_tool.output_files import check_outputs
     from cfa_tool.reporting.picture import png_converter, require_png_converter
 
@@ -498,9 +488,7 @@ def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     if diagram and diagram != "-" and Path(diagram).suffix.lower() not in DIAGRAM_SUFFIXES:
         raise OptionError(f"--diagram: '{diagram}' must end in .svg or .png (the two formats the diagram is written in)")
     output = getattr(args, "output", None)
-    if output and output != "-" and Path(output).suffix.lower() != ".csv" and not _special_file(output):
-        raise OptionError(f"--output: the simulated rows are written as CSV; give a file name ending in .csv, not "
-                          f"'{printable(output)}'")
+    require_suffix("--output", output, ".csv", "the simulated rows")
     outputs = [(option, getattr(args, attr, None)) for option, attr in REPORT_FILES]
     targets = check_outputs(outputs, inputs, [("--tables", getattr(args, "tables", None))])
     if output and "--output" in targets:  # rows of data: an existing file (perhaps someone's data) is never replaced

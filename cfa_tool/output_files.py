@@ -130,7 +130,7 @@ def check_target(option: str, given: str) -> Target:
     if st is not None:
         if stat.S_ISDIR(st.st_mode):
             raise OptionError(f"{option}: '{shown(given)}' is a folder; give a file name")
-        if stat.S_ISCHR(st.st_mode) or stat.S_ISFIFO(st.st_mode):
+        if _special(st.st_mode):
             if not os.access(path, os.W_OK):
                 raise OptionError(f"{option}: '{shown(given)}' cannot be written (permission denied)")
             if stat.S_ISFIFO(st.st_mode):
@@ -216,6 +216,18 @@ def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path
                 raise OptionError(f"{other} writes '{shown(target.given)}' into the {option} folder, where the tables "
                                   f"go; give it another name or place")
     return targets
+
+
+def _special(mode: int) -> bool:
+    return stat.S_ISCHR(mode) or stat.S_ISFIFO(mode)
+
+
+def special_file(path: str) -> bool:
+    """A device or a named pipe: written in place, whatever its name, never renamed over."""
+    try:
+        return _special(os.stat(path).st_mode)
+    except OSError:
+        return False
 
 
 def check_new_file(target: Target) -> Target:

@@ -19,7 +19,11 @@ def check_files(args: argparse.Namespace, outputs: list[tuple[str, str | None]],
 
 
 def require_suffix(option: str, given: str | None, suffix: str, what: str) -> None:
-    if given and given != "-" and Path(given).suffix.lower() != suffix:
+    """A file output must carry the extension of what it holds; standard output and special files (written in
+    place, whatever their names) need none."""
+    from cfa_tool.output_files import special_file
+
+    if given and given != "-" and Path(given).suffix.lower() != suffix and not special_file(given):
         raise OptionError(f"{option}: {what} are written as {suffix[1:].upper()}; give a file name ending in {suffix}, "
                           f"not '{printable(given)}'")
 
