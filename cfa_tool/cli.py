@@ -13,7 +13,7 @@ import sys
 import warnings
 from pathlib import Path
 
-from cfa_tool.errors import CfaError, EstimationError, ModelError, OptionError, printable
+from cfa_tool.errors import CfaError, ModelError, OptionError, printable
 from cfa_tool.method import FitTest, Information, MissingData, Weighting
 
 PROG = "cfa-tool"

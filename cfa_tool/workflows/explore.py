@@ -16,7 +16,7 @@ import pandas as pd
 from cfa_tool.errors import OptionError, printable
 from cfa_tool.exploration import (CountNote, CountRule, Exploration, ExploreSettings, ExtractionMethod, RotationMethod,
                                   RotationSpec, explore_correlations, from_ordinal_moments, from_sample_moments)
-from cfa_tool.exploration.factor_count import CLOSE_RMSEA, PERCENTILE, FitStep, fit_sequence
+from cfa_tool.exploration.factor_count import CLOSE_RMSEA, FitStep, fit_sequence
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 

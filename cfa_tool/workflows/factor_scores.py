@@ -21,7 +21,7 @@ from cfa_tool.errors import EstimationError, OptionError, printable
 from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
-from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod, Unscored
+from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
 from cfa_tool.scoring.quality import ScoreQuality
 
 
@@ -311,11 +311,6 @@ def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bo
     sample scores another.  With groups, ``data`` needs the fit's group column, and each row is scored with its
     group's parameters (a row of a group the fit does not have gets no scores).  The quality figures are those of
     the fitted model; the report's fit is the earlier one."""
-    from cfa_tool.pipeline import inputs as api
-    from cfa_tool.data.filters import apply_filters, parse_filter
-    from cfa_tool.data.matching import check_columns
-    from cfa_tool.data.row_ids import duplicate_note, row_ids
-
     if not isinstance(result, FitResult):
         raise OptionError(f"scores need a fit result (cfa_tool.fit), not {type(result).__name__}")
     if not result.admissible:
