@@ -28,6 +28,10 @@ class _Parser(argparse.ArgumentParser):
         where = f"{command}: " if command else ""
         self.exit(2, f"{PROG}: {where}{printable(message)} (see '{self.prog} --help')\n")
 
+    def __init__(self, *args, **kwargs):
+        kwargs.setdefault("allow_abbrev", False)  # '--group' must never quietly mean '--group-column'
+        super().__init__(*args, **kwargs)
+
     def add_argument(self, *args, **kwargs):
         if kwargs.get("action") is None and args and str(args[0]).startswith("--"):
             kwargs["action"] = _Once
@@ -46,8 +50,24 @@ class _Once(argparse.Action):
         setattr(namespace, self.dest, values)
 
 
+class _Renamed(argparse.Action):
+    """An option of an earlier version: a one-line error that shows the option to use now."""
+
+    def __init__(self, option_strings, dest, now: str = "", **kwargs):
+        self.now = now
+        super().__init__(option_strings, dest, nargs="?", help=argparse.SUPPRESS, **kwargs)
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        parser.error(f"{option_string} is no longer an option; {self.now}")
+
+
+def _add_renamed(p: argparse.ArgumentParser, option: str, now: str) -> None:
+    p.add_argument(option, action=_Renamed, dest=f"_renamed_{option.strip('-')}", now=now)
+
+
 def build_parser() -> argparse.ArgumentParser:
-    parser = _Parser(prog=PROG, description="Confirmatory factor analysis: fit a model file to a data set.")
+    parser = _Parser(prog=PROG, description="Confirmatory factor analysis: fit a model file to a data set.",
+                     allow_abbrev=False)
     parser.add_argument("--version", action="version", version=_version())
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
 
@@ -64,7 +84,8 @@ def build_parser() -> argparse.ArgumentParser:
     check = sub.add_parser("check", help="parse a model and check it against the data without fitting")
     check.add_argument("model", metavar="MODEL", help="model file")
     check.add_argument("--data", required=True, metavar="FILE", help="data file")
-    check.add_argument("--group", metavar="COLUMN", help="column that defines groups")
+    check.add_argument("--group-column", dest="group", metavar="COLUMN", help="column whose values name the groups")
+    _add_renamed(check, "--group", GROUP_NOW)
     _add_data_options(check)
 
     compare = sub.add_parser("compare", help="fit rival models to the same rows and test nested pairs")
@@ -158,17 +179,30 @@ def _codes(text: str) -> tuple[float, ...]:
     return tuple(codes)
 
 
+GROUP_NOW = "name the column whose values are the groups with --group-column COLUMN"
+
+
 def _add_group_options(p: argparse.ArgumentParser, required: bool) -> None:
-    p.add_argument("--group", required=required, metavar="COLUMN",
-                   help="column that defines groups: the model is fitted in every group at once, with intercepts and factor means")
+    p.add_argument("--group-column", dest="group", required=required, metavar="COLUMN",
+                   help="column whose values name the groups: the model is fitted in every group at once, with intercepts "
+                        "and factor means")
+    _add_renamed(p, "--group", GROUP_NOW)
     p.add_argument("--reference-group", metavar="LABEL",
                    help="group whose factor means are fixed at zero (default: the first label in sorted order)")
 
 
 def _add_test_option(p: argparse.ArgumentParser) -> None:
-    p.add_argument("--test", choices=FitTest.words(), default="normal",
-                   help="'satorra-bentler': scaled chi-square, robust standard errors and robust fit indices for non-normal "
-                        "complete data; 'yuan-bentler': the same with full-information ML (--missing full-information)")
+    p.add_argument("--robust", action="store_true",
+                   help="for answers that are not normally distributed: a scaled chi-square, robust standard errors and "
+                        "robust fit indices (Satorra-Bentler with complete rows, Yuan-Bentler when full-information ML "
+                        "keeps rows with gaps; the report names the one used)")
+    _add_renamed(p, "--test", "for robust standard errors and a scaled test give --robust (the method follows from the "
+                              "data and is named in the report)")
+
+
+def fit_test(args: argparse.Namespace) -> FitTest:
+    """The test the command line asks for: a robust one with --robust, else the normal-theory test."""
+    return FitTest.ROBUST if args.robust else FitTest.NORMAL
 
 
 def _add_resampling_command(sub, name: str, help_text: str, replications: int, what: str) -> None:
@@ -200,17 +234,27 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--diagram", metavar="PATH", help="write the path diagram as SVG (or PNG when PATH ends in .png and a converter is installed)")
     p.add_argument("--dpi", type=int, default=300, help="resolution of pictures (PNG diagram, Word figure; default 300)")
     p.add_argument("--tables", metavar="FOLDER", help="write every table as CSV and as LaTeX (booktabs) into FOLDER")
-    p.add_argument("--information", choices=Information.words(), default=None,
-                   help="information matrix for standard errors (default: expected; full-information ML uses observed)")
+    p.add_argument("--standard-errors-from", dest="information", choices=Information.words(), default=None,
+                   help="'expected' or 'observed' information (the curvature of the likelihood the standard errors come "
+                        "from; default: expected with complete rows, observed with full-information ML); --robust gives "
+                        "robust (sandwich) standard errors instead")
+    _add_renamed(p, "--information", "choose where standard errors come from with --standard-errors-from "
+                                     "expected|observed")
     p.add_argument("--mi-threshold", type=float, default=3.84, metavar="X",
                    help="show modification indices of at least X (default 3.84)")
     p.add_argument("--mi-top", type=int, default=None, metavar="N", help="show at most N modification indices")
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
     _add_test_option(p)
     _add_ordinal_options(p)
-    p.add_argument("--missing", choices=MissingData.words(), default=None,
-                   help="rows with missing answers: used by full-information ML (the default when a model variable has "
-                        "gaps) or left out (listwise)")
+    add_incomplete_rows_option(p)
+
+
+def add_incomplete_rows_option(p: argparse.ArgumentParser, where: str = "") -> None:
+    p.add_argument("--incomplete-rows", dest="missing", choices=MissingData.words(), default=None,
+                   help="rows with some answers missing: kept and used by full-information ML (the default when a model "
+                        f"variable has gaps) or left out (listwise){where}")
+    _add_renamed(p, "--missing", "choose what happens to rows with gaps with --incomplete-rows "
+                                 + "|".join(MissingData.words()))
 
 
 def _add_ordinal_options(p: argparse.ArgumentParser) -> None:
@@ -317,7 +361,7 @@ def _run(args: argparse.Namespace) -> int:
         from cfa_tool.reporting.workflow_text import render_comparison
         from cfa_tool.workflows.compare import compare
 
-        result = compare(args.models, args.data, group=args.group, reference_group=args.reference_group, test=args.test,
+        result = compare(args.models, args.data, group=args.group, reference_group=args.reference_group, test=fit_test(args),
                          sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
                          ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
         return _emit(args, result, render_comparison)
@@ -592,7 +636,7 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
 
     result = fit(model, data, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
                  missing_codes=args.missing_codes, keep=args.keep, information=args.information,
-                 mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=args.test,
+                 mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=fit_test(args),
                  missing=args.missing, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
                  id_column=getattr(args, "id", None))
     return _emit(args, result, render)  # a model that does not converge raises EstimationError (exit 3)

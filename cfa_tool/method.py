@@ -69,6 +69,15 @@ class FitTest(Choice):
     YUAN_BENTLER = ("yuan-bentler", "Yuan-Bentler", "the Yuan-Bentler scaled test and robust standard errors")
     SCALE_SHIFTED = ("scale-shifted", "scale-shifted, mean and variance adjusted (Asparouhov & Muthen 2010)",
                      "mean-and-variance adjusted (scale-shifted) chi-square test", False)
+    # the robust test that suits the data, resolved before any fit (FitOptions): Satorra-Bentler with
+    # complete rows, Yuan-Bentler with full-information ML, the adjusted test of least squares for ordinal items
+    ROBUST = ("robust", "robust", "a robust test", True)
+
+    def for_rows(self, missing: "MissingData | None") -> "FitTest":
+        """The robust test resolved for how rows with gaps are handled (other tests unchanged)."""
+        if self is not FitTest.ROBUST:
+            return self
+        return FitTest.YUAN_BENTLER if missing is MissingData.FULL_INFORMATION else FitTest.SATORRA_BENTLER
 
     @property
     def robust(self) -> bool:
@@ -87,8 +96,8 @@ class Information(Choice):
 class MissingData(Choice):
     """What happens to rows with missing answers on model variables."""
 
-    LISTWISE = ("listwise", "listwise deletion", "listwise deletion")
     FULL_INFORMATION = ("full-information", "full information", "full-information maximum likelihood")
+    LISTWISE = ("listwise", "listwise deletion", "listwise deletion")
 
 
 class Items(Choice):

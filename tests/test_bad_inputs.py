@@ -275,7 +275,7 @@ def test_escape_sequences_never_reach_the_terminal(corpus, capsys):
     (corpus / "data" / "escapes.csv").write_text(data.replace("q1,", "q1\x1b[31m,", 1))
     model = 'name "\x1b[2Jcleared"\nfactor f: "q1\x1b[31m", q2, q3\nfactor g: q4, q5, q6\n'
     (corpus / "models" / "escapes.cfa").write_text(model)
-    code, out, err = _run(["fit", "models/escapes.cfa", "--data", "data/escapes.csv", "--group", "site"], capsys)
+    code, out, err = _run(["fit", "models/escapes.cfa", "--data", "data/escapes.csv", "--group-column", "site"], capsys)
     assert code == 0, err
     assert "\x1b" not in out and "\x07" not in out
     assert "\\x1b[2Jcleared" in out and "\\x1b[2Jb\\x1b]0;title\\x07" in out

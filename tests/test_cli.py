@@ -110,7 +110,7 @@ def test_missing_files(workdir):
 
 
 def test_bad_option_is_one_line(workdir):
-    proc = run("fit", "rider.cfa", "--data", "rider.csv", "--information", "sideways", cwd=workdir)
+    proc = run("fit", "rider.cfa", "--data", "rider.csv", "--standard-errors-from", "sideways", cwd=workdir)
     assert proc.returncode == 2
     assert len(proc.stderr.strip().splitlines()) == 1
 

@@ -90,7 +90,7 @@ def test_cli_compare_invariance_replicate_json(tmp_path):
     assert [set(m) >= {"name", "fit"} for m in out["models"]] == [True, True]
     assert set(out["tests"][0]) >= {"restricted", "general", "chi_square_difference", "df_difference", "p_value", "method"}
 
-    proc = run("invariance", str(MODEL), "--data", str(DATA), "--group", "district", "--partial", "auto", "--json", "-")
+    proc = run("invariance", str(MODEL), "--data", str(DATA), "--group-column", "district", "--partial", "auto", "--json", "-")
     assert proc.returncode == 0, proc.stderr
     out = json.loads(proc.stdout)
     assert [s["level"] for s in out["steps"]] == ["configural", "metric", "scalar", "strict"]
@@ -108,7 +108,7 @@ def test_cli_compare_invariance_replicate_json(tmp_path):
 
 
 def test_fit_with_groups_on_the_command_line():
-    proc = run("fit", str(MODEL), "--data", str(DATA), "--group", "district", "--json", "-")
+    proc = run("fit", str(MODEL), "--data", str(DATA), "--group-column", "district", "--json", "-")
     assert proc.returncode == 0, proc.stderr
     out = json.loads(proc.stdout)
     assert [g["name"] for g in out["groups"]] == ["north", "south"]

@@ -95,12 +95,12 @@ def test_decision_rule_is_checked_and_named(tmp_path):
     groups_data(1).to_csv(data, index=False)
     (tmp_path / "m.cfa").write_text(MODEL)
     out = tmp_path / "r.json"
-    proc = run("invariance", str(tmp_path / "m.cfa"), "--data", str(data), "--group", "grp", "--decide-by", "both",
+    proc = run("invariance", str(tmp_path / "m.cfa"), "--data", str(data), "--group-column", "grp", "--decide-by", "both",
                "--json", str(out))
     assert proc.returncode == 0, proc.stderr
     assert "judged by " + DecisionRule.BOTH.description.replace("alpha", ".05") in " ".join(proc.stdout.split())
     assert json.loads(out.read_text())["decision_rule"]["name"] == "both"
-    bad = run("invariance", str(tmp_path / "m.cfa"), "--data", str(data), "--group", "grp", "--decide-by", "cfi")
+    bad = run("invariance", str(tmp_path / "m.cfa"), "--data", str(data), "--group-column", "grp", "--decide-by", "cfi")
     assert bad.returncode == 2 and "Traceback" not in bad.stderr
 
 

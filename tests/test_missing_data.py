@@ -133,7 +133,7 @@ def test_modification_indices_with_incomplete_data(hs_holes):
 
 
 def test_missing_data_summary_and_cli():
-    proc = run("fit", str(MODEL), "--data", str(DATA), "--missing", "full-information", "--json", "-")
+    proc = run("fit", str(MODEL), "--data", str(DATA), "--incomplete-rows", "full-information", "--json", "-")
     assert proc.returncode == 0, proc.stderr
     out = json.loads(proc.stdout)
     assert out["n_obs"] == 480

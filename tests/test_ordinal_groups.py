@@ -172,7 +172,7 @@ def test_command_line_invariance_with_ordinal_items(tmp_path):
     model = tmp_path / "two.model"
     model.write_text(MODEL.replace("ordinal q1..q6\n", ""))
     out = tmp_path / "ladder.json"
-    code = main(["invariance", str(model), "--data", str(data), "--group", "site", "--ordinal", "all", "--json", str(out)])
+    code = main(["invariance", str(model), "--data", str(data), "--group-column", "site", "--ordinal", "all", "--json", str(out)])
     assert code == 0
     import json
 
@@ -181,7 +181,7 @@ def test_command_line_invariance_with_ordinal_items(tmp_path):
     assert steps[2]["robust"]["chi_square_scaled"] > 0
     assert "Asparouhov & Muthen 2006" in steps[2]["versus_previous"]["method"]
     fitted = tmp_path / "fit.json"
-    assert main(["fit", str(model), "--data", str(data), "--group", "site", "--ordinal", "all", "--json", str(fitted)]) == 0
+    assert main(["fit", str(model), "--data", str(data), "--group-column", "site", "--ordinal", "all", "--json", str(fitted)]) == 0
     kinds = {e["kind"] for e in json.loads(fitted.read_text())["estimates"]}
     assert "threshold" in kinds
 

@@ -256,7 +256,7 @@ def test_workflow_commands_fit_80_columns(tmp_path, hs_data, monkeypatch):
     (tmp_path / "a.cfa").write_text(three)
     (tmp_path / "b.cfa").write_text(three + "covary x7, x8\n")
     for args in (["compare", str(tmp_path / "a.cfa"), str(tmp_path / "b.cfa"), "--data", str(data)],
-                 ["invariance", str(tmp_path / "a.cfa"), "--data", str(data), "--group", "school"]):
+                 ["invariance", str(tmp_path / "a.cfa"), "--data", str(data), "--group-column", "school"]):
         proc = run(*args)
         assert proc.returncode == 0, proc.stderr
         assert max(len(line) for line in proc.stdout.splitlines()) <= 80, args[0]

@@ -55,8 +55,8 @@ def _json(*args: str) -> str:
 
 
 def test_json_is_byte_identical_across_runs(tmp_path):
-    for args in (("fit", str(MODEL), "--data", str(DATA), "--test", "satorra-bentler", "--missing", "listwise"),
-                 ("invariance", str(MODEL), "--data", str(DATA), "--group", "district", "--partial", "auto"),
+    for args in (("fit", str(MODEL), "--data", str(DATA), "--robust", "--incomplete-rows", "listwise"),
+                 ("invariance", str(MODEL), "--data", str(DATA), "--group-column", "district", "--partial", "auto"),
                  ("compare", str(MODEL.parent / "rider_one_factor.cfa"), str(MODEL), "--data", str(DATA)),
                  ("replicate", str(MODEL), "--data", str(DATA), "--seed", "9")):
         first, second = _json(*args), _json(*args)

@@ -25,9 +25,7 @@ def add_parser(sub) -> None:
     cli._add_data_options(p)
     cli._add_group_options(p, required=False)
     cli._add_ordinal_options(p)
-    p.add_argument("--missing", choices=("listwise", "full-information"), default=None,
-                   help="rows with gaps in the fit: full-information ML (the default when a model variable has gaps) or "
-                        "left out of the fit (listwise); every row is scored from the items it answered either way")
+    cli.add_incomplete_rows_option(p, " (in the fit; every row is scored from the items it answered either way)")
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
     p.add_argument("--from-fit", metavar="RESULT.json",
                    help="score the data with the parameters of an earlier fit of MODEL (its 'fit --json' result) instead "
@@ -36,8 +34,8 @@ def add_parser(sub) -> None:
 
 
 #: options about fitting, which cannot apply when the parameters come from an earlier fit
-FITTING_OPTIONS = (("group", "--group"), ("reference_group", "--reference-group"), ("ordinal", "--ordinal"),
-                   ("ordinal_estimator", "--ordinal-estimator"), ("missing", "--missing"),
+FITTING_OPTIONS = (("group", "--group-column"), ("reference_group", "--reference-group"), ("ordinal", "--ordinal"),
+                   ("ordinal_estimator", "--ordinal-estimator"), ("missing", "--incomplete-rows"),
                    ("max_iterations", "--max-iterations"))
 
 

@@ -481,17 +481,17 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
     refs = [r for r in all_refs(spec) if r.group is not None]
     mean_refs = [r for r in all_refs(spec) if r.kind in ("intercept", "mean")]
     if mean_refs and not means:
-        raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only with groups (--group COLUMN) "
-                          f"or with missing data (--missing full-information)", mean_refs[0])
+        raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only with groups (--group-column COLUMN) "
+                          f"or with missing data (--incomplete-rows full-information)", mean_refs[0])
     if not multi:
         if refs:
-            raise _fail(spec, f"'in group {refs[0].group}' needs groups: give the group column (--group COLUMN)", refs[0])
+            raise _fail(spec, f"'in group {refs[0].group}' needs groups: give the group column (--group-column COLUMN)", refs[0])
         if spec.noninvariant:
             raise _fail(spec, "'noninvariant' lets a parameter differ across groups, and this fit has no groups: give "
-                              "the group column (--group COLUMN) or remove the statement", spec.noninvariant[0])
+                              "the group column (--group-column COLUMN) or remove the statement", spec.noninvariant[0])
         if spec.invariant:
             raise ModelError(f"the model holds {', '.join(equality_words(spec.invariant))} equal across groups, and this "
-                             f"fit has no groups: give the group column (--group COLUMN) or remove the statement")
+                             f"fit has no groups: give the group column (--group-column COLUMN) or remove the statement")
         return
     for ref in refs:
         if ref.group not in group_labels:
@@ -504,10 +504,10 @@ def _check_threshold_use(spec: Spec, ordinal: dict[str, int]) -> None:
     for ref in spec.noninvariant:
         if ref.kind == "threshold" and ref.names[0] not in ordinal:
             raise _fail(spec, f"{ref}: '{ref.names[0]}' is not treated as ordinal in a multi-group fit, so it has no "
-                              f"thresholds (declare it with 'ordinal {ref.names[0]}' or --ordinal, and give --group)", ref)
+                              f"thresholds (declare it with 'ordinal {ref.names[0]}' or --ordinal, and give --group-column)", ref)
     if "thresholds" in spec.invariant and not ordinal:
         raise ModelError("holding thresholds equal across groups applies to ordinal items in a multi-group fit, and this fit has none "
-                         "(declare them with 'ordinal ...' or --ordinal, and give --group)", None, None)
+                         "(declare them with 'ordinal ...' or --ordinal, and give --group-column)", None, None)
 
 
 def _merge_terms(terms: list[tuple[int, float]]) -> tuple[tuple[int, float], ...]:

@@ -6,7 +6,7 @@ itself.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import lru_cache
 
 import numpy as np
@@ -66,10 +66,12 @@ class FitOptions:
         if self.information is not None:
             object.__setattr__(self, "information", Information.parse(self.information, "information"))
         if self.information is not None and self.test is not FitTest.NORMAL:
-            raise OptionError(f"with the {self.test} test the standard errors are robust (sandwich) ones, so an "
-                              f"information matrix ('{self.information}') cannot be chosen; remove that option")
+            raise OptionError(f"with a robust test the standard errors are robust (sandwich) ones, so the information "
+                              f"they come from ('{self.information}', --standard-errors-from) cannot be chosen; remove "
+                              f"that option")
         if self.missing is not None:
             object.__setattr__(self, "missing", MissingData.parse(self.missing, "missing"))
+            object.__setattr__(self, "test", self.test.for_rows(self.missing))
         if self.information is Information.EXPECTED and self.missing is MissingData.FULL_INFORMATION:
             raise OptionError("with full-information ML the standard errors use the observed information, the one that "
                               "stays valid when answers are missing at random (Kenward & Molenberghs 1998); the expected "
@@ -82,10 +84,12 @@ class FitOptions:
         object.__setattr__(self, "max_iterations",
                            check.whole_number("the iteration limit", self.max_iterations, 1, check.MAX_ITERATIONS))
         if self.missing is MissingData.FULL_INFORMATION and self.test is FitTest.SATORRA_BENTLER:
-            raise OptionError("the Satorra-Bentler test needs complete rows; with full-information ML use --test yuan-bentler")
+            raise OptionError("the Satorra-Bentler test needs complete rows; the robust test of full-information ML is "
+                              "the Yuan-Bentler one (--robust chooses the test that suits the rows)")
         if self.test is FitTest.YUAN_BENTLER and self.missing is MissingData.LISTWISE:
-            raise OptionError("the Yuan-Bentler test goes with full-information ML (--missing full-information); "
-                              "for complete rows use --test satorra-bentler")
+            raise OptionError("the Yuan-Bentler test goes with full-information ML (--incomplete-rows full-information); "
+                              "the robust test of complete rows is the Satorra-Bentler one (--robust chooses the test "
+                              "that suits the rows)")
 
 
 @dataclass(frozen=True)
@@ -166,6 +170,8 @@ def fit_moments(spec: Spec, moments: SampleMoments | list[tuple[str | None, Samp
                 options: FitOptions = FitOptions(), group_column: str | None = None) -> FitResult:
     """Fit ``spec`` by normal-theory maximum likelihood to one or several groups' moments."""
     groups = [(None, moments)] if isinstance(moments, SampleMoments) else list(moments)
+    if options.missing is None:  # rows with gaps are decided by cfa_tool.fit; moments alone are complete rows
+        options = replace(options, missing=MissingData.LISTWISE)
     with blas_threads_for(len(spec.observed_names)):
         est = estimate(spec, groups, options)
         return assess(spec, groups, est, options, group_column)
@@ -181,12 +187,13 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     values = model.entry_values(theta)
     codes, rows, cols = table.entry_arrays()
     group_of = table.group_array()
-    std_all = np.empty_like(values)
-    std_lv = np.empty_like(values)
+    standardized = np.empty_like(values)
+    factors_standardized = np.empty_like(values)
     mats = [model.matrices(theta, g) for g in range(table.n_groups)]
     for g in range(table.n_groups):
         sel = group_of == g
-        std_all[sel], std_lv[sel] = standardize_entries(mats[g], codes[sel], rows[sel], cols[sel], values[sel])
+        standardized[sel], factors_standardized[sel] = standardize_entries(mats[g], codes[sel], rows[sel], cols[sel],
+                                                                           values[sel])
 
     warnings: list[str] = []
     for label, m in groups:
@@ -198,7 +205,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             elif m.rows_dropped > LISTWISE_WARNING_SHARE * m.rows_read:
                 warnings.insert(0, f"listwise deletion left out {m.rows_dropped} of {m.rows_read} rows{where} "
                                    f"({100 * m.rows_dropped / m.rows_read:.0f}%) because they miss an answer on a model "
-                                   f"variable; full-information ML (--missing full-information) would use every answer "
+                                   f"variable; full-information ML (--incomplete-rows full-information) would use every answer "
                                    f"they have, and the rows left out may differ from those kept")
             else:
                 warnings.append(f"{m.rows_dropped} of {m.rows_read} rows{where} had a missing answer on a model variable "
@@ -259,7 +266,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     problems = solution_problems(table, mats, theta, cov_theta if est.converged else None, est.converged, est.message,
                                  options.max_iterations)
 
-    estimates = estimate_rows(table, values, inference, std_all, std_lv)
+    estimates = estimate_rows(table, values, inference, standardized, factors_standardized)
 
     group_results = []
     for g, ((label, m), gm) in enumerate(zip(groups, likelihood.groups)):
@@ -308,7 +315,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                       parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels)
 
 
-def estimate_rows(table: ParameterTable, values: np.ndarray, inference, std_all: np.ndarray, std_lv: np.ndarray,
+def estimate_rows(table: ParameterTable, values: np.ndarray, inference, standardized: np.ndarray,
+                  factors_standardized: np.ndarray,
                   derived: frozenset = frozenset()) -> tuple[EstimateRow, ...]:
     """One row per matrix entry; fixed entries (and ``derived`` ones, which follow from others) have no SE.
     Arrays are turned into lists first: indexing numpy arrays element by element is slow."""
@@ -319,7 +327,7 @@ def estimate_rows(table: ParameterTable, values: np.ndarray, inference, std_all:
         low, high = inference.ci_low.tolist(), inference.ci_high.tolist()
     else:
         se = z = p = low = high = [nan] * n
-    values_l, all_l, lv_l = values.tolist(), std_all.tolist(), std_lv.tolist()
+    values_l, all_l, lv_l = values.tolist(), standardized.tolist(), factors_standardized.tolist()
     multi = table.multigroup
     rows = []
     for e, par in enumerate(table.parameters):

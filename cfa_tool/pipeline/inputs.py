@@ -58,7 +58,7 @@ def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), 
     """Options about rows and columns of raw data cannot apply to summary statistics: each is an
     error rather than silently ignored."""
     given = [name for name, value in (("a sheet (--sheet)", sheet), ("missing-value codes (--missing-codes)", missing_codes),
-                                      ("row filters (--keep)", keep), ("groups (--group)", group),
+                                      ("row filters (--keep)", keep), ("groups (--group-column)", group),
                                       ("an id column (--id)", id_column)) if value]
     if given:
         raise OptionError(f"{source} holds summary statistics, not rows of data, so {given[0]} cannot apply; "
@@ -238,10 +238,11 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             moments, notes = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
         if fit_options.missing is not None:  # a matrix has no rows, so how rows with gaps are handled cannot apply
-            raise OptionError("summary statistics hold no rows, so the handling of missing answers (--missing) cannot "
+            raise OptionError("summary statistics hold no rows, so the handling of missing answers (--incomplete-rows) cannot "
                               "apply; remove the option")
         if fit_options.test is not FitTest.NORMAL:
-            raise OptionError("summary statistics allow only the normal-theory test with complete data")
+            raise OptionError("summary statistics allow only the normal-theory test: robust tests and standard errors "
+                              "need the rows of answers (--robust cannot apply)")
         result = converged(fit_moments(spec, moments, replace(fit_options, diagnostics=False)))
         return _described(replace(result, warnings=tuple(notes) + result.warnings), spec, None)
     if data is None:
@@ -304,6 +305,7 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
         return fit_options, []
     if fit_options.test is FitTest.YUAN_BENTLER:  # the robust test of full-information ML
         return replace(fit_options, missing=MissingData.FULL_INFORMATION), []
+    robust = fit_options.test is FitTest.ROBUST
     gap = np.zeros(len(frame), dtype=bool)  # column by column: a sub-frame of the model variables costs more
     for name in names:
         values = frame[name].to_numpy()
@@ -318,10 +320,11 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
         return replace(fit_options, missing=MissingData.LISTWISE), []
     if fit_options.test is FitTest.SATORRA_BENTLER:
         raise OptionError(f"{gaps} rows have missing answers on model variables, so the fit uses full-information ML, "
-                          f"whose robust test is Yuan-Bentler (--test yuan-bentler); for the Satorra-Bentler test of the "
-                          f"complete rows only, choose --missing listwise")
+                          f"whose robust test is Yuan-Bentler (--robust chooses it); for the Satorra-Bentler test of the "
+                          f"complete rows only, choose --incomplete-rows listwise")
     note = (f"{gaps} of {rows} rows miss some answers on model variables; every answer is used by "
-            f"full-information ML (the default when answers are missing; --missing listwise would leave those rows out)")
+            f"full-information ML (the default when answers are missing; --incomplete-rows listwise would leave those "
+            f"rows out)" + ("; the robust test with full-information ML is the Yuan-Bentler one" if robust else ""))
     return replace(fit_options, missing=MissingData.FULL_INFORMATION), [note]
 
 
@@ -379,7 +382,7 @@ def continuous_only(spec: Spec, command: str) -> Spec:
 
 
 def check_ordinal_options(fit_options) -> None:
-    if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is not FitTest.NORMAL:
+    if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test not in (FitTest.NORMAL, FitTest.ROBUST):
         raise OptionError("ordinal items are fitted with listwise deletion and their own adjusted test; full-information "
                           "ML and the Satorra-Bentler and Yuan-Bentler tests are for continuous items")
     if fit_options.information is not None:

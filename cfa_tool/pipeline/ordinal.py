@@ -181,7 +181,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     for e, par in enumerate(table.parameters):
         if par.kind == "residual_variance" and par.variables[0] in derived_items:
             values[e] = T_final[par.row, par.row]
-    std_all, std_lv = standardize_entries(final, codes, rows, cols, values)
+    standardized, factors_standardized = standardize_entries(final, codes, rows, cols, values)
     warnings = []
     if moments.rows_dropped:
         warnings.append(f"{moments.rows_dropped} of {moments.rows_read} rows had a missing answer on a model variable and "
@@ -211,7 +211,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
                                  options.max_iterations)
     derived = frozenset(e for e, par in enumerate(table.parameters)
                         if par.kind == "residual_variance" and par.variables[0] in derived_items)
-    estimates = estimate_rows(table, values, inference, std_all, std_lv, derived) + _first_step_thresholds(moments,
+    estimates = estimate_rows(table, values, inference, standardized, factors_standardized, derived) + _first_step_thresholds(moments,
                                                                                                           order)
     factors, htmt = reliability(final, table.observed, table.latent, R, declared=spec.reverse_keyed or None,
                                 sum_scores=False, not_traits=spec.method_factors)
@@ -356,16 +356,17 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     values = model.entry_values(theta)
     codes, rows, cols = table.entry_arrays()
     group_of = table.group_array()
-    std_all, std_lv = np.full(len(values), np.nan), np.full(len(values), np.nan)
+    standardized, factors_standardized = np.full(len(values), np.nan), np.full(len(values), np.nan)
     mats = [model.matrices(theta, g) for g in range(G)]
     for g in range(G):
         sel = group_of == g
-        std_all[sel], std_lv[sel] = standardize_entries(mats[g], codes[sel], rows[sel], cols[sel], values[sel])
+        standardized[sel], factors_standardized[sel] = standardize_entries(mats[g], codes[sel], rows[sel], cols[sel],
+                                                                           values[sel])
         sigma = mats[g].implied_covariance()
         mu = mats[g].implied_mean()
         thr = np.flatnonzero(sel & (codes == 6))
         item = obj.item_of[rows[thr]]
-        std_all[thr] = std_lv[thr] = (values[thr] - mu[item]) / np.sqrt(np.diag(sigma)[item])
+        standardized[thr] = factors_standardized[thr] = (values[thr] - mu[item]) / np.sqrt(np.diag(sigma)[item])
     warnings = []
     dropped = sum(m.rows_dropped for m in moments)
     if dropped:
@@ -410,7 +411,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         warnings.append(ORDINAL_NOTE)
     problems = solution_problems(table, list(mats), theta, cov_theta if est.converged else None, est.converged,
                                  est.message, options.max_iterations)
-    estimates = estimate_rows(table, values, inference, std_all, std_lv)
+    estimates = estimate_rows(table, values, inference, standardized, factors_standardized)
     group_results = []
     for g, (lab, m) in enumerate(groups):
         mg = moments[g]

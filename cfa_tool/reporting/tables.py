@@ -621,7 +621,7 @@ def normality_lines(result) -> list[str]:
                 f"on {n.skewness_df} df, p {p_phrase(n.skewness_p_value)}; kurtosis {n.kurtosis:.3f} "
                 f"(normal: {n.kurtosis_expected:g}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}.")
         if (n.skewness_p_value < 0.05 or n.kurtosis_p_value < 0.05) and result.robust is None:
-            line += " The data depart from normality: consider the scaled test (--test satorra-bentler)."
+            line += " The data depart from normality: consider the scaled test (--robust)."
         lines.append(line)
     return lines
 

@@ -1,0 +1,63 @@
+"""One --robust switch: the robust test follows from how rows with gaps are handled, and the report
+names the one used (Satorra & Bentler 1994 with complete rows; Yuan & Bentler 2000 with
+full-information ML).  The arithmetic of each test is checked elsewhere; here the choice is."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+
+import cfa_tool
+from cfa_tool.errors import OptionError
+from cfa_tool.method import FitTest, MissingData
+from tests.conftest import THREE_FACTORS, holzinger_swineford
+from tests.test_cli import DATA, MODEL, run
+
+
+def _hs():
+    return holzinger_swineford()[[f"x{i}" for i in range(1, 10)]]
+
+
+def test_robust_with_complete_rows_is_the_satorra_bentler_test():
+    robust = cfa_tool.fit(THREE_FACTORS, _hs(), test="robust")
+    named = cfa_tool.fit(THREE_FACTORS, _hs(), test="satorra-bentler")
+    assert robust.method.test is FitTest.SATORRA_BENTLER
+    assert robust.robust.chi_square_scaled == pytest.approx(named.robust.chi_square_scaled, rel=1e-12)
+    assert "Satorra-Bentler" in robust.method.sentence()
+
+
+def test_robust_with_gaps_is_the_yuan_bentler_test_and_listwise_keeps_satorra_bentler():
+    data = _hs().copy()
+    data.iloc[::7, 2] = np.nan  # every seventh row misses x3
+    robust = cfa_tool.fit(THREE_FACTORS, data, test="robust")
+    assert (robust.method.test, robust.method.missing) == (FitTest.YUAN_BENTLER, MissingData.FULL_INFORMATION)
+    assert any("Yuan-Bentler" in w for w in robust.warnings)
+    named = cfa_tool.fit(THREE_FACTORS, data, test="yuan-bentler")
+    assert robust.robust.chi_square_scaled == pytest.approx(named.robust.chi_square_scaled, rel=1e-12)
+    dropped = cfa_tool.fit(THREE_FACTORS, data, test="robust", missing="listwise")
+    assert dropped.method.test is FitTest.SATORRA_BENTLER and dropped.n_obs == len(data) - len(data.iloc[::7])
+
+
+def test_robust_cannot_apply_to_summary_statistics():
+    cov = _hs().cov()
+    with pytest.raises(OptionError, match="need the rows of answers"):
+        cfa_tool.fit(THREE_FACTORS, covariance=cov, n_obs=301, test="robust")
+
+
+def test_command_line_robust_is_named_in_the_json_and_the_report():
+    proc = run("fit", str(MODEL), "--data", str(DATA), "--robust", "--json", "-")
+    assert proc.returncode == 0, proc.stderr
+    assert "Yuan-Bentler" in json.loads(proc.stdout)["estimator"]  # the demo data have gaps
+    proc = run("fit", str(MODEL), "--data", str(DATA), "--robust", "--incomplete-rows", "listwise")
+    assert proc.returncode == 0, proc.stderr
+    assert "Satorra-Bentler" in proc.stdout
+
+
+def test_compare_with_robust_gives_the_scaled_difference_tests():
+    one = str(MODEL.with_name("rider_one_factor.cfa"))
+    proc = run("compare", str(MODEL), one, "--data", str(DATA), "--robust", "--json", "-")
+    assert proc.returncode == 0, proc.stderr
+    methods = {t["method"] for t in json.loads(proc.stdout)["tests"]}
+    assert any("Satorra-Bentler" in m for m in methods), methods
