@@ -56,3 +56,12 @@ def simulate_cfa(loadings: np.ndarray, phi: np.ndarray, theta: np.ndarray, n: in
     data = rng.multivariate_normal(np.zeros(len(sigma)), sigma, size=n)
     names = names or [f"y{i + 1}" for i in range(len(sigma))]
     return pd.DataFrame(data, columns=names)
+
+
+def single_group(model, data):
+    """A model and its variables' single-group sample moments, read as cfa_tool.fit reads them."""
+    from cfa_tool.data.moments import sample_moments
+    from cfa_tool.pipeline.inputs import read_inputs
+
+    spec, frame, source = read_inputs(model, data)
+    return spec, sample_moments(frame, spec.observed_names, source)

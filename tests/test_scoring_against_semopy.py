@@ -12,18 +12,17 @@ from __future__ import annotations
 
 import numpy as np
 
-from cfa_tool.pipeline.inputs import prepare
 from cfa_tool.pipeline.continuous import FitOptions, estimate
 from cfa_tool.scoring.linear import score_rows
 from cfa_tool.scoring.methods import ScoreMethod
 from cfa_tool.scoring.model import score_inputs
-from tests.conftest import THREE_FACTORS
+from tests.conftest import THREE_FACTORS, single_group
 
 
 def test_regression_scores_equal_semopy_predictions_on_holzinger_swineford(hs_data):
     import semopy
 
-    spec, moments = prepare(THREE_FACTORS, hs_data)
+    spec, moments = single_group(THREE_FACTORS, hs_data)
     groups = [(None, moments)]
     (model,) = score_inputs(estimate(spec, groups, FitOptions(missing="listwise")), groups)
     ours = score_rows(model, hs_data[list(model.items)].to_numpy(float))[ScoreMethod.REGRESSION].scores

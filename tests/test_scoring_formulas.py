@@ -12,7 +12,7 @@ import numpy as np
 import pytest
 from scipy.linalg import sqrtm
 
-from cfa_tool.pipeline.inputs import moments_for, prepare, read_inputs
+from cfa_tool.pipeline.inputs import moments_for, read_inputs
 from cfa_tool.assessment.reliability import reliability
 from cfa_tool.pipeline.continuous import FitOptions, estimate
 from cfa_tool.resources import resource_dir
@@ -21,7 +21,7 @@ from cfa_tool.scoring.methods import ScoreMethod, Unscored
 from cfa_tool.scoring.model import ScoringModel, score_inputs
 from cfa_tool.scoring.quality import score_quality, sum_scores
 from cfa_tool.scoring.weights import pattern_weights
-from tests.conftest import THREE_FACTORS
+from tests.conftest import THREE_FACTORS, single_group
 
 ALL = np.ones((1, 9), dtype=bool)
 METHODS = (ScoreMethod.REGRESSION, ScoreMethod.BARTLETT, ScoreMethod.CORRELATION_PRESERVING)
@@ -85,7 +85,7 @@ def test_correlation_preserving_scores_reproduce_the_estimated_factor_covariance
     """At ML estimates with every factor covariance free, the ML gradient condition
     L' Sigma^-1 (S - Sigma) Sigma^-1 L = 0 (S with divisor N; Joreskog 1969) makes W'SW = W'Sigma W = Phi,
     so the sample covariance of the scores equals Phi (to the optimiser's precision)."""
-    spec, moments = prepare(THREE_FACTORS, hs_data)
+    spec, moments = single_group(THREE_FACTORS, hs_data)
     groups = [(None, moments)]
     (model,) = score_inputs(estimate(spec, groups, FitOptions(missing="listwise")), groups)
     scores = score_rows(model, hs_data[list(model.items)].to_numpy(float), (ScoreMethod.CORRELATION_PRESERVING,))
@@ -117,7 +117,7 @@ def test_higher_order_factor_scores_follow_the_total_effects():
 
 
 def test_sum_score_omega_is_the_reliability_modules_omega_with_positive_keys(hs_data):
-    spec, moments = prepare(THREE_FACTORS, hs_data)
+    spec, moments = single_group(THREE_FACTORS, hs_data)
     groups = [(None, moments)]
     est = estimate(spec, groups, FitOptions(missing="listwise"))
     (model,) = score_inputs(est, groups)
@@ -133,7 +133,7 @@ def test_sum_score_omega_is_the_reliability_modules_omega_with_positive_keys(hs_
 def test_a_reverse_keyed_item_is_reversed_in_the_sum_and_its_omega(hs_data):
     """Reflecting x2 (x2 -> -x2) makes its loading negative; the keyed sum and its omega must not change."""
     def fitted(data):
-        spec, moments = prepare(THREE_FACTORS, data)
+        spec, moments = single_group(THREE_FACTORS, data)
         groups = [(None, moments)]
         (model,) = score_inputs(estimate(spec, groups, FitOptions(missing="listwise")), groups)
         return model, data[list(model.items)].to_numpy(float)

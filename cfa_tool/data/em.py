@@ -12,7 +12,7 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.errors import EstimationError
-from cfa_tool.data.patterns import PatternData
+from cfa_tool.data.patterns import PatternData, missing_groups
 
 
 def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float = 1e-10) -> tuple[np.ndarray, np.ndarray, int]:
@@ -23,14 +23,7 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
     mu = np.nanmean(rows, axis=0)
     var = np.nanvar(rows, axis=0)
     sigma = np.diag(np.where(var > 0, var, 1.0))
-    n_missing = p - mask.sum(axis=1)
-    # rows grouped by how many answers they miss, with the columns they miss
-    groups = []
-    for m in np.unique(n_missing):
-        if m == 0:
-            continue
-        which = np.flatnonzero(n_missing == m)
-        groups.append((which, np.nonzero(~mask[which])[1].reshape(len(which), m)))
+    groups = list(missing_groups(mask))  # rows grouped by how many answers they miss, with the columns they miss
     for iteration in range(1, max_iterations + 1):
         precision = np.linalg.inv(sigma)
         dev = np.where(mask, rows - mu, 0.0)

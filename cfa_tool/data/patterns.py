@@ -45,6 +45,18 @@ def group_patterns(observed: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.nda
     return observed[first], index.ravel(), counts
 
 
+def missing_groups(observed: np.ndarray):
+    """(rows, their missing columns as a (rows, m) array) for each number m > 0 of missing answers, from an
+    (n, p) mask of answered items: the batches in which conditional means and covariances are computed."""
+    p = observed.shape[1]
+    n_missing = p - observed.sum(axis=1)
+    for m in np.unique(n_missing):
+        if m == 0:
+            continue
+        which = np.flatnonzero(n_missing == m)
+        yield which, np.nonzero(~observed[which])[1].reshape(len(which), m)
+
+
 def pattern_data(rows: np.ndarray) -> PatternData:
     """Group rows by pattern; rows with nothing observed must be removed beforehand."""
     mask = ~np.isnan(rows)
@@ -89,12 +101,7 @@ def _schur_inverses(sigma: np.ndarray, observed: np.ndarray, logdet_sigma: float
     precision = 0.5 * (precision + precision.T)
     A = np.broadcast_to(precision, (P, p, p)).copy()
     logdet = np.full(P, logdet_sigma)
-    n_missing = p - observed.sum(axis=1)
-    for m in np.unique(n_missing):
-        if m == 0:
-            continue
-        which = np.flatnonzero(n_missing == m)
-        miss = np.nonzero(~observed[which])[1].reshape(len(which), m)  # missing columns of each pattern
+    for which, miss in missing_groups(observed):  # patterns batched by their number of missing items
         block = precision[miss[:, :, None], miss[:, None, :]]  # (k, m, m) = L_mm
         try:
             block_chol = np.linalg.cholesky(block)

@@ -21,7 +21,7 @@ import numpy as np
 
 from cfa_tool.estimation.objective import Evaluation
 from cfa_tool.model.rank_two import second_derivative_contraction
-from cfa_tool.data.patterns import PatternData, embedded_inverse
+from cfa_tool.data.patterns import PatternData, embedded_inverse, missing_groups
 from cfa_tool.model.implied import StructuredModel
 
 
@@ -242,19 +242,8 @@ def _row_blocks(rows: np.ndarray):
     for each number of missing answers above zero."""
     observed = ~np.isnan(rows)
     together = observed.T.astype(float) @ observed.astype(float)
-    blocks = [(which, miss, observed[which][:, None, :]) for which, miss in _missing_groups(observed)]
+    blocks = [(which, miss, observed[which][:, None, :]) for which, miss in missing_groups(observed)]
     return observed, together, blocks
-
-
-def _missing_groups(observed: np.ndarray):
-    """(rows, their missing columns) for each number of missing answers above zero."""
-    p = observed.shape[1]
-    n_missing = p - observed.sum(axis=1)
-    for m in np.unique(n_missing):
-        if m == 0:
-            continue
-        which = np.flatnonzero(n_missing == m)
-        yield which, np.nonzero(~observed[which])[1].reshape(len(which), m)
 
 
 def fiml_log_likelihood(likelihood: MissingDataLikelihood, theta: np.ndarray) -> float:

@@ -177,12 +177,6 @@ def _no_group_notes(no_group: int, group: str) -> list[str]:
             f"{'was' if no_group == 1 else 'were'} left out"]
 
 
-def prepare(model: str | Path | Spec, data: pd.DataFrame | str | Path) -> tuple[Spec, SampleMoments]:
-    """Single-group moments of a model's variables (see :func:`moments_for` for groups)."""
-    spec, frame, source = read_inputs(model, data)
-    return spec, sample_moments(frame, spec.observed_names, source)
-
-
 def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None, *, group: str | None = None,
         reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
         keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,

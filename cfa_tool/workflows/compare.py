@@ -113,11 +113,10 @@ def _compare_ordinal(specs, names, complete, source, group, reference_group, fit
                      dropped) -> Comparison:
     from cfa_tool.workflows.ordinal_compare import fit_ordinal_models, ordinal_difference_test
 
-    estimations, results, data_groups = fit_ordinal_models(specs, complete, source, group, reference_group, fit_options,
-                                                           ordinal_items, method)
+    estimations, results = fit_ordinal_models(specs, complete, source, group, reference_group, fit_options,
+                                              ordinal_items, method)
     def test_pair(a: int, b: int) -> tuple[list[DifferenceTest], str]:
-        test, reason = ordinal_difference_test(estimations[a], estimations[b], results[a], results[b], names[a], names[b],
-                                               data_groups[b], method)
+        test, reason = ordinal_difference_test(estimations[a], estimations[b], results[a], results[b], names[a], names[b])
         return ([test] if test is not None else []), reason
 
     tests, not_nested = _each_pair(names, results, test_pair, specs, likelihood=False)

@@ -26,7 +26,7 @@ from cfa_tool.workflows.nesting import NESTING_TOLERANCE, DifferenceTest
 
 
 def fit_ordinal_models(specs, complete, source, group, reference_group, fit_options, ordinal_items, method):
-    """(estimations, results, per-model groups) of every model on the same complete rows."""
+    """(estimations, results) of every model on the same complete rows."""
     from cfa_tool.pipeline.inputs import check_ordinal_options, ordinal_groups
 
     check_ordinal_options(fit_options)
@@ -34,7 +34,7 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
     if any(set(spec.observed_names) != items for spec in specs[1:]):
         raise OptionError("models of ordinal items can be compared only on the same items (their thresholds and "
                           "correlations are the data); give every model the same indicators")
-    estimations, results, data_groups = [], [], []
+    estimations, results = [], []
     for spec in specs:
         if group is None:
             groups = [("all", ordinal_moments(complete, spec.observed_names, source, frozenset(items - ordinal_items)))]
@@ -49,8 +49,7 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
             thresholds = len({par.terms[0][0] for par in est.table.parameters if par.kind == "threshold" and par.free})
             result = replace(result, fit=replace(result.fit, n_free_parameters=result.fit.n_free_parameters - thresholds))
         results.append(result)
-        data_groups.append(groups)
-    return estimations, results, data_groups
+    return estimations, results
 
 
 def statistic_order(names_from: tuple[str, ...], names_to: tuple[str, ...], n_thresholds: dict[str, int]) -> np.ndarray:
@@ -69,7 +68,7 @@ def statistic_order(names_from: tuple[str, ...], names_to: tuple[str, ...], n_th
 
 
 def ordinal_difference_test(restricted, general, restricted_result, general_result, restricted_name: str,
-                            general_name: str, general_groups, method: str) -> tuple[DifferenceTest | None, str]:
+                            general_name: str) -> tuple[DifferenceTest | None, str]:
     """The adjusted difference test when ``restricted`` is nested in ``general``; otherwise None and the reason."""
     if restricted.df == general.df:
         return None, "the models have the same degrees of freedom, so neither is a restricted form of the other"
