@@ -19,7 +19,6 @@ import cfa_tool
 from cfa_tool.errors import DataError, ModelError, OptionError
 from cfa_tool.workflows.invariance import invariance
 from tests.conftest import THREE_FACTORS, simulate_cfa
-from tests.test_against_semopy import _compare, _semopy_lookup
 
 LADDER = {"configural": (115.851, 48), "metric": (124.044, 54), "scalar": (164.103, 60), "strict": (181.511, 69)}
 
@@ -67,26 +66,6 @@ def test_configural_is_the_sum_of_separate_group_fits(hs_data, hs_ladder):
     assert shares["Grant-White"] == pytest.approx(51.542, abs=5e-4)
     separate = [cfa_tool.fit(THREE_FACTORS, hs_data[hs_data.school == s]).fit.chi_square for s in ("Pasteur", "Grant-White")]
     assert configural.fit.chi_square == pytest.approx(sum(separate), rel=1e-8)
-
-
-def test_configural_estimates_match_semopy_per_group(hs_data, hs_ladder):
-    # semopy's multi-group analysis fits each group on its own, which is the configural model
-    import semopy.multigroup as mg
-
-    res = mg.multigroup("visual =~ x1 + x2 + x3\ntextual =~ x4 + x5 + x6\nspeed =~ x7 + x8 + x9", hs_data, "school",
-                        solver="trust-constr")
-    configural = hs_ladder.steps[0].result
-    for school in ("Pasteur", "Grant-White"):
-        ours = {}
-        for r in configural.estimates:
-            if r.group != school or r.kind in ("intercept", "mean"):
-                continue
-            if r.kind == "loading":
-                ours[("loading", *r.variables)] = (r.estimate, r.se)
-            else:
-                a, b = sorted(r.variables if len(r.variables) == 2 else r.variables * 2)
-                ours[("cov", a, b)] = (r.estimate, r.se)
-        _compare(ours, _semopy_lookup(res.estimates[school]))
 
 
 def test_partial_search_frees_the_known_intercepts(hs_data):

@@ -4,7 +4,7 @@ Reference values: the three-factor CFA of x1..x9 (N = 301) appears in many
 textbooks and software manuals.  The values below are recalled from memory of
 those widely published analyses (ML, divisor N, marker scaling) and rounded as
 usually printed; semopy reproduces the chi-square, CFI, TLI and RMSEA
-independently (tests/test_against_semopy.py).
+independently (tests/semopy/test_fit_against_semopy.py).
 """
 
 from __future__ import annotations

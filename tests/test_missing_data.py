@@ -57,27 +57,6 @@ def test_fiml_with_groups(hs_data, hs_holes):
     assert joint.fit.log_likelihood == pytest.approx(sum(p.fit.log_likelihood for p in parts), rel=1e-8)
 
 
-def test_fiml_estimates_agree_with_semopy(hs_holes):
-    # semopy's model with a mean structure fitted by ML to incomplete rows is FIML
-    import semopy
-
-    ours = cfa_tool.fit(THREE_FACTORS, hs_holes, missing="full-information")
-    assert ours.converged
-    model = semopy.ModelMeans("visual =~ x1 + x2 + x3\ntextual =~ x4 + x5 + x6\nspeed =~ x7 + x8 + x9")
-    model.fit(hs_holes, obj="ML", solver="L-BFGS-B")
-    table = model.inspect()
-    est = {(r.kind, r.variables): r.estimate for r in ours.estimates}
-    checked = 0
-    for _, row in table.iterrows():
-        if row["op"] == "~" and row["rval"] in ("visual", "textual", "speed"):
-            assert est[("loading", (row["rval"], row["lval"]))] == pytest.approx(row["Estimate"], rel=1e-3)
-            checked += 1
-        elif row["op"] == "~~" and row["lval"] == row["rval"] and row["lval"] in ITEMS:
-            assert est[("residual_variance", (row["lval"],))] == pytest.approx(row["Estimate"], rel=1e-3)
-            checked += 1
-    assert checked == 18
-
-
 def test_em_matches_complete_data_moments_when_nothing_is_missing(hs_data):
     rows = hs_data[ITEMS].to_numpy(dtype=float)
     mu, sigma, _ = em_saturated(pattern_data(rows))

@@ -2,7 +2,7 @@
 
 Check values and their sources:
 * regression scores equal semopy's ``predict_factors`` (semopy as an independent implementation; see
-  tests/test_scoring_against_semopy.py for why the two compare directly), tolerance 1e-6 from issue 16;
+  tests/semopy/test_scores_against_semopy.py for why the two compare directly), tolerance 1e-6 from issue 16;
 * rows with gaps: the conditional normal mean of the factors given the answered items,
   E[eta | x_o] = Phi L_o' Sigma_oo^-1 (x_o - mu_o) (Anderson 2003, theorem 2.5.1), computed here with
   numpy from the estimates the command writes to its JSON;
@@ -38,21 +38,6 @@ def model_file(tmp_path):
     path = tmp_path / "hs.cfa"
     path.write_text(THREE_FACTORS)
     return path
-
-
-def test_regression_scores_written_by_the_command_equal_semopy_predictions(tmp_path, model_file, hs_data, capsys):
-    import semopy
-
-    out = tmp_path / "scores.csv"
-    code, text, err = _run(["scores", model_file, "--data", HS_FILE, "--output", out], capsys)
-    assert code == 0, err
-    ours = pd.read_csv(out)
-    theirs = semopy.Model("visual =~ x1 + x2 + x3\ntextual =~ x4 + x5 + x6\nspeed =~ x7 + x8 + x9")
-    theirs.fit(hs_data, solver="trust-constr")
-    predicted = theirs.predict_factors(hs_data)[FACTORS].to_numpy()
-    columns = [f"{f}_regression" for f in FACTORS]
-    np.testing.assert_allclose(ours[columns].to_numpy(), predicted, rtol=0, atol=1e-6)  # issue 16: 1e-6
-    assert "Quality of the scores" in text and "Keyed sum scores" in text
 
 
 def test_row_order_and_the_id_column_are_kept(tmp_path, model_file, capsys):

@@ -11,12 +11,17 @@ to the same data (semopy with solver="trust-constr", as DEVELOPERS.md prescribes
 from __future__ import annotations
 
 import numpy as np
+import pandas as pd
+import pytest
 
 from cfa_tool.pipeline.continuous import FitOptions, estimate
 from cfa_tool.scoring.linear import score_rows
 from cfa_tool.scoring.methods import ScoreMethod
 from cfa_tool.scoring.model import score_inputs
 from tests.conftest import THREE_FACTORS, single_group
+from tests.test_scores_command import FACTORS, HS_FILE, _run, model_file  # noqa: F401 (a fixture)
+
+semopy = pytest.importorskip("semopy", reason="the comparisons with semopy need semopy (pip install '.[test]')")
 
 
 def test_regression_scores_equal_semopy_predictions_on_holzinger_swineford(hs_data):
@@ -32,3 +37,18 @@ def test_regression_scores_equal_semopy_predictions_on_holzinger_swineford(hs_da
     predicted = theirs.predict_factors(hs_data)[list(model.factors)].to_numpy()
     # tolerance from the issue (1e-6); the two optimisers stop within about 1e-7 of each other
     np.testing.assert_allclose(ours, predicted, rtol=0, atol=1e-6)
+
+
+def test_regression_scores_written_by_the_command_equal_semopy_predictions(tmp_path, model_file, hs_data, capsys):
+    import semopy
+
+    out = tmp_path / "scores.csv"
+    code, text, err = _run(["scores", model_file, "--data", HS_FILE, "--output", out], capsys)
+    assert code == 0, err
+    ours = pd.read_csv(out)
+    theirs = semopy.Model("visual =~ x1 + x2 + x3\ntextual =~ x4 + x5 + x6\nspeed =~ x7 + x8 + x9")
+    theirs.fit(hs_data, solver="trust-constr")
+    predicted = theirs.predict_factors(hs_data)[FACTORS].to_numpy()
+    columns = [f"{f}_regression" for f in FACTORS]
+    np.testing.assert_allclose(ours[columns].to_numpy(), predicted, rtol=0, atol=1e-6)  # issue 16: 1e-6
+    assert "Quality of the scores" in text and "Keyed sum scores" in text

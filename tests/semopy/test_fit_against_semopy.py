@@ -16,50 +16,10 @@ import pytest
 import cfa_tool
 from cfa_tool.errors import EstimationError
 from tests.conftest import THREE_FACTORS
+from tests.semopy.helpers import _compare, _ours_lookup, _semopy_fit, _semopy_lookup
 from tests.corpus import Case, corpus_cases, questionnaire
 
-
-def _semopy_fit(description: str, data):
-    import semopy
-
-    model = semopy.Model(description)
-    model.fit(data, solver="trust-constr")
-    table = model.inspect()
-    return model, table
-
-
-def _semopy_lookup(table) -> dict:
-    """(kind-ish key) -> (estimate, se) from semopy's parameter table."""
-    out = {}
-    for _, row in table.iterrows():
-        se = row["Std. Err"]
-        se = float(se) if se != "-" else float("nan")
-        if row["op"] == "~":
-            out[("loading", row["rval"], row["lval"])] = (float(row["Estimate"]), se)
-        elif row["op"] == "~~":
-            a, b = sorted((row["lval"], row["rval"]))
-            out[("cov", a, b)] = (float(row["Estimate"]), se)
-    return out
-
-
-def _ours_lookup(result) -> dict:
-    out = {}
-    for r in result.estimates:
-        if r.kind == "loading":
-            out[("loading", *r.variables)] = (r.estimate, r.se)
-        else:
-            names = r.variables if len(r.variables) == 2 else r.variables * 2
-            a, b = sorted(names)
-            out[("cov", a, b)] = (r.estimate, r.se)
-    return out
-
-
-def _compare(ours: dict, theirs: dict) -> None:
-    assert set(ours) == set(theirs)
-    for key, (est, se) in theirs.items():
-        assert ours[key][0] == pytest.approx(est, rel=1e-3, abs=1e-6), key
-        if np.isfinite(se):
-            assert ours[key][1] == pytest.approx(se, rel=1e-3), key
+semopy = pytest.importorskip("semopy", reason="the comparisons with semopy need semopy (pip install '.[test]')")
 
 
 def test_three_factor_estimates_and_standard_errors(hs_data, hs_three):
