@@ -175,3 +175,26 @@ def test_model_errors_name_the_line_and_column(text, message, line, column):
 def test_blocks_are_one_group_only(hs_data):
     with pytest.raises(ModelError, match="one group only"):
         cfa_tool.fit(GEOMIN, hs_data, group="school")
+
+
+def test_reports_show_the_rotated_block_not_the_unrotated_one(geomin_fit):
+    from cfa_tool.reporting.html_report import html_report
+    from cfa_tool.reporting.paragraph import methods_paragraph
+    from cfa_tool.reporting.text_formats import markdown_report
+
+    block = geomin_fit.exploratory[0]
+    assert not any(set(r.variables) & set(block.factors) for r in geomin_fit.estimates)
+    text = geomin_fit.summary()
+    markdown = markdown_report(geomin_fit)
+    html = html_report(geomin_fit)
+    for report in (markdown, html, " ".join(text.split())):
+        assert "Exploratory block f1, f2, f3 (geomin rotation, oblique)" in report
+        assert "Correlations of the rotated factors" in report
+    assert 'class="r faint"' in html
+    # x9's visual loading (about .37 here) is shown with its SE, as in the block's values
+    i = block.items.index("x9")
+    j = int(np.argmax(np.abs(block.standardized[i])))
+    assert f"{block.standardized_se[i, j]:.3f}" in markdown
+    paragraph = methods_paragraph(geomin_fit)
+    assert "rotated by geomin (oblique)" in paragraph and "echelon" not in paragraph
+    assert "first k - 1 items fixed at 0" in paragraph

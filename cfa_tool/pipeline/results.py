@@ -348,6 +348,14 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         blocks = rotate_blocks(model, spec, theta if converged else None, parameter_covariance)
         inside = spec.exploratory_factors
         modification_indices = [m for m in modification_indices if not inside.intersection(m.variables)]
+        # the block's unrotated loadings and factor covariances, and coefficients computed from them, describe an
+        # arbitrary orientation: the rotated block (``exploratory``) stands in for them
+        estimates = [r for r in estimates if not inside.intersection(r.variables)]
+        from dataclasses import replace
+
+        groups = tuple(replace(g, reliability=tuple(r for r in g.reliability if r.factor not in inside),
+                               htmt=tuple(h for h in g.htmt if not inside.intersection((h.first, h.second))))
+                       for g in groups)
     return FitResult(
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
         estimator=method.sentence(len(groups)), method=method, converged=converged, iterations=iterations,
