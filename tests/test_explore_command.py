@@ -151,7 +151,7 @@ def test_python_entry_point(hs_data):
     assert dataclasses.is_dataclass(result) and result.__dataclass_params__.frozen
     assert result.factors == 3 and result.to_dict()["solution"]["rotation"] == "geomin"
     assert "Pattern loadings" in result.summary() and "<svg" in result._repr_html_()
-    with pytest.raises(OptionError, match="target matrix"):
+    with pytest.raises(OptionError, match="needs a target"):
         cfa_tool.explore(hs_data, items=ITEMS, rotation="target")
     frame = pd.DataFrame(hs_data[ITEMS])
     assert cfa_tool.explore(frame, factors=1).items == tuple(ITEMS)  # default: every column that holds numbers
