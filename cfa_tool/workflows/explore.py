@@ -163,6 +163,7 @@ class ExploreResult(Presentable):
             },
             "draft": {"text": self.draft_text, "factor_names": list(ex.draft.factor_names),
                       "usable": ex.draft.usable, "threshold": ex.draft.threshold,
+                      "written": [name for name, w in zip(ex.draft.factor_names, ex.draft.written) if w],
                       "placements": [{"item": p.item, "placement": p.placement.value,
                                       "factor": ex.draft.factor_names[p.factor], "loading": p.loading}
                                      for p in ex.draft.placements]},
