@@ -198,3 +198,19 @@ def test_reports_show_the_rotated_block_not_the_unrotated_one(geomin_fit):
     paragraph = methods_paragraph(geomin_fit)
     assert "rotated by geomin (oblique)" in paragraph and "echelon" not in paragraph
     assert "first k - 1 items fixed at 0" in paragraph
+
+
+def test_diagram_draws_the_rotated_salient_loadings(geomin_fit):
+    from cfa_tool.reporting.diagram import BLOCK_LOADING_DRAWN, path_diagram
+    from cfa_tool.reporting.html_report import html_report
+    from cfa_tool.reporting.numbers import unit
+
+    svg = path_diagram(geomin_fit)
+    block = geomin_fit.exploratory[0]
+    for name in block.factors:
+        assert f">{name}</text>" in svg
+    salient = block.standardized[np.abs(block.standardized) >= BLOCK_LOADING_DRAWN]
+    assert len(salient) == 10  # nine items on their own factor, and x9 on a second (the .37 cross-loading)
+    for value in salient:
+        assert f">{unit(value, 2)}</text>" in svg
+    assert "rotated loadings of .30 or more" in html_report(geomin_fit)
