@@ -214,3 +214,27 @@ def test_diagram_draws_the_rotated_salient_loadings(geomin_fit):
     for value in salient:
         assert f">{unit(value, 2)}</text>" in svg
     assert "rotated loadings of .30 or more" in html_report(geomin_fit)
+
+
+def test_json_holds_the_rotated_block(geomin_fit):
+    import json
+
+    out = json.loads(json.dumps(geomin_fit.to_dict()))
+    block = out["exploratory_blocks"][0]
+    assert block["rotation"] == "geomin" and block["oblique"] is True
+    np.testing.assert_allclose(block["standardized"], geomin_fit.exploratory[0].standardized)
+    assert "delta method" in block["standard_errors"]
+
+
+@pytest.mark.parametrize("command", ["scores", "bootstrap"])
+def test_workflows_that_would_show_the_unrotated_block_refuse_it(tmp_path, command, capsys):
+    from cfa_tool.cli import main
+    from tests.conftest import DATASETS
+
+    model = tmp_path / "block.cfa"
+    model.write_text(GEOMIN)
+    extra = ["--output", tmp_path / "s.csv"] if command == "scores" else ["--replications", 20]
+    code = main([str(a) for a in [command, model, "--data", DATASETS / "holzinger_swineford_1939.csv", *extra]])
+    err = capsys.readouterr().err
+    assert code == 2 and "not available for a model with an exploratory block" in err and "block.cfa:1:1:" in err
+    assert not (tmp_path / "s.csv").exists()
