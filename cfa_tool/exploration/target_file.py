@@ -23,7 +23,7 @@ from pathlib import Path
 import numpy as np
 
 from cfa_tool.errors import OptionError
-from cfa_tool.input_files import input_bytes, normalise_line_ends, utf16_text
+from cfa_tool.input_files import input_text, normalise_line_ends
 
 MAX_TARGET_BYTES = 5_000_000
 FIRST_WORD = "item"
@@ -55,13 +55,7 @@ def _fail(source: str, line: int, column: int | None, message: str) -> OptionErr
 def read_target_file(path: str | Path) -> TargetFile:
     """Read a target file (see the module's docstring), with one-line errors naming the file, line and column."""
     source = str(path)
-    raw = input_bytes(path, "target file", OptionError, MAX_TARGET_BYTES)
-    text = utf16_text(raw)
-    if text is None:
-        try:
-            text = raw.decode("utf-8-sig")
-        except UnicodeDecodeError:
-            raise OptionError(f"{source}: the target file is not UTF-8 text; save it as UTF-8 (comma-separated)") from None
+    text = input_text(path, "target file", OptionError, MAX_TARGET_BYTES)
     lines = [(n + 1, line) for n, line in enumerate(normalise_line_ends(text).split("\n"))
              if line.strip() and not line.lstrip().startswith("#")]
     if not lines:
