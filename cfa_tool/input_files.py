@@ -85,6 +85,21 @@ def _read_pipe(path: Path, limit: int) -> bytes:
         return handle.read(limit + 1)
 
 
+def input_text(path: str | Path, what: str, error: type[UserInputError], limit: int) -> str:
+    """The text of an input file (UTF-8 with or without a byte-order mark, or UTF-16), read with a size limit;
+    ``error`` for other bytes and for NUL characters."""
+    raw = input_bytes(path, what, error, limit)
+    text = utf16_text(raw)
+    if text is None:
+        try:
+            text = raw.decode("utf-8-sig")
+        except UnicodeDecodeError:
+            raise error(f"{what} '{_short(Path(path))}' is not UTF-8 text") from None
+    if "\x00" in text:
+        raise error(f"{what} '{_short(Path(path))}' is not a text file (it contains NUL bytes)")
+    return text
+
+
 def utf16_text(raw: bytes) -> str | None:
     """Text of a UTF-16 file (as some Windows programs save 'Unicode text'), recognised by its
     byte-order mark, or by NUL bytes in every other position of ASCII text; None otherwise."""

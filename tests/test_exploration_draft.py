@@ -78,3 +78,16 @@ def test_nothing_placed_gives_a_text_without_a_model():
 def test_names_the_language_cannot_write_are_an_error():
     with pytest.raises(DataError, match="double quote"):
         draft_model(('say "hi"', "b", "c"), np.array([[0.7], [0.6], [0.5]]))
+
+
+def test_a_factor_of_two_items_is_left_as_a_comment_that_says_why():
+    """Two items identify a factor only through its correlations with other factors; such a factor often fails
+    as inadmissible on new data (Anderson & Gerbing 1984), so the draft asks for three (common practice)."""
+    pattern = np.array([[0.7, 0.0], [0.6, 0.1], [0.8, 0.0], [0.0, 0.8], [0.1, 0.7]])
+    draft = draft_model(("a1", "a2", "a3", "b1", "b2"), pattern)
+    assert draft.written == (True, False)
+    assert _factors(draft.text) == {"factor1": ["a3", "a1", "a2"]}
+    comment = " ".join(line[2:] for line in draft.text.splitlines() if line.startswith("#"))
+    assert "factor2 is left out: it has 2 items (b1, b2), fewer than 3" in comment
+    assert "inadmissible" in comment
+    assert "# factor factor2: b1, b2" in draft.text

@@ -88,7 +88,8 @@ def test_draft_model_is_ready_for_a_confirmatory_fit(hs_data, hs_input):
     assert found.count is not None and found.factors == found.count.recommended
     result = cfa_tool.fit(found.draft.text, hs_data)
     assert result.converged
-    placed = {p.item for p in found.draft.placements if p.placement is Placement.ON_FACTOR}
+    placed = {p.item for p in found.draft.placements
+              if p.placement is Placement.ON_FACTOR and found.draft.written[p.factor]}
     assert set(result.observed) == placed
     assert set(result.latent) == {name for name, w in zip(found.draft.factor_names, found.draft.written) if w}
     # x9 loads on both the visual and the speed factor: the best-known cross-loading of these data
@@ -98,3 +99,8 @@ def test_draft_model_is_ready_for_a_confirmatory_fit(hs_data, hs_input):
     lines = found.draft.text.splitlines()
     assert any(line.startswith("#") and "x9" in line for line in lines)
     assert not any("x9" in line for line in lines if not line.startswith("#"))
+    # with x9 undecided the speed factor keeps two items (x7, x8): left as a comment, since a factor of two items
+    # often fails as inadmissible on new data (exploration.draft)
+    speed = [p for p in found.draft.placements if p.item in ("x7", "x8")]
+    assert all(p.placement is Placement.ON_FACTOR and not found.draft.written[p.factor] for p in speed)
+    assert any(line.startswith("#") and "fewer than 3" in line for line in lines)

@@ -18,9 +18,13 @@ def add_parser(sub) -> None:
                         "(default: every column that holds numbers)")
     p.add_argument("--factors", metavar="K", default="auto",
                    help="number of factors, or 'auto' for the recommended number (default auto)")
-    p.add_argument("--rotation", default="quartimin",
-                   choices=("quartimin", "oblimin", "geomin", "promax", "varimax", "none"),
-                   help="quartimin (default), oblimin, geomin, promax: correlated factors; varimax: uncorrelated; none")
+    p.add_argument("--rotation", default=None,
+                   choices=("quartimin", "oblimin", "geomin", "promax", "varimax", "target", "none"),
+                   help="quartimin (default), oblimin, geomin, promax: correlated factors; varimax: uncorrelated; "
+                        "target: towards --target; none")
+    p.add_argument("--target", metavar="FILE",
+                   help="target rotation towards this CSV file: first line 'item,' then the factor names; one line per "
+                        "item, 0 where its loading is aimed at zero, empty where free (implies --rotation target)")
     p.add_argument("--extraction", default="maximum-likelihood", choices=("maximum-likelihood", "least-squares"),
                    help="how the factors are estimated (default maximum-likelihood)")
     p.add_argument("--ordinal", metavar="ITEMS",
@@ -45,13 +49,14 @@ def run(args: argparse.Namespace) -> int:
 
     require_suffix("--draft", args.draft, MODEL_SUFFIX, "model files")
     outputs = [("--draft", args.draft), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown)]
-    targets = check_files(args, outputs, [args.data])
+    targets = check_files(args, outputs, [args.data] + ([args.target] if args.target else []))
+    rotation = args.rotation or ("target" if args.target else "quartimin")
     if args.draft:
         targets["--draft"] = check_new_file(targets["--draft"])
-    result = explore(args.data, items=args.items, factors=args.factors, rotation=args.rotation,
+    result = explore(args.data, items=args.items, factors=args.factors, rotation=rotation,
                      extraction=args.extraction, ordinal=cli._ordinal_arg(args.ordinal), split=args.split,
                      sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
-                     replications=args.replications, seed=args.seed)
+                     replications=args.replications, seed=args.seed, target=args.target)
     files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
     files += report_files(args, result, explore_html_report, explore_markdown)
     if not args._stdout_taken:

@@ -31,7 +31,7 @@ import numpy as np
 from cfa_tool.data.moments import LARGEST_VALUE, SMALLEST_SPREAD, SampleMoments, _check_moments
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, printable
-from cfa_tool.input_files import input_bytes, normalise_line_ends, text_lines, utf16_text
+from cfa_tool.input_files import input_text, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.numbers import number, whole_number
 from cfa_tool.options import MAX_OBSERVATIONS
 
@@ -60,16 +60,7 @@ def _numbers(cells: list[str], where: str) -> list[float]:
 
 
 def _text(path: Path) -> str:
-    raw = input_bytes(path, "summary-statistics file", DataError, MAX_SUMMARY_BYTES)
-    text = utf16_text(raw)
-    if text is None:
-        try:
-            text = raw.decode("utf-8-sig")
-        except UnicodeDecodeError:
-            raise DataError(f"summary-statistics file '{path}' is not UTF-8 text") from None
-    if "\x00" in text:
-        raise DataError(f"summary-statistics file '{path}' is not a text file (it contains NUL bytes)")
-    return text
+    return input_text(path, "summary-statistics file", DataError, MAX_SUMMARY_BYTES)
 
 
 def _split(line: str, delimiter: str) -> list[str]:

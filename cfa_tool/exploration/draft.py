@@ -5,8 +5,11 @@ loadings at or above the threshold (.30 by default, common practice) on two or m
 or on none, are not placed: they are listed in comments for the researcher to decide.  Within a
 factor the items are listed by loading, largest first, so that the first item, which scales the
 factor by default, is the one that loads most strongly.  Factor names are generic (factor1, ...)
-with a comment asking for real names.  A factor left with fewer than two items (or a single
-factor with fewer than three) cannot be identified and is written as a comment.  The text parses
+with a comment asking for real names.  A factor left with fewer than three items is written as a
+comment saying why: one item cannot identify a factor, and a factor of two items is identified only
+through its correlations with the other factors, which on a new sample (the confirmation half)
+often gives an inadmissible solution (a loading above 1, a negative error variance; Anderson &
+Gerbing 1984 on small numbers of indicators).  The text parses
 with ``cfa_tool.language.parser.parse_model`` whenever at least one factor could be written.
 """
 
@@ -22,6 +25,7 @@ from cfa_tool.errors import DataError, printable
 from cfa_tool.exploration.choices import Placement
 
 DEFAULT_THRESHOLD = 0.30  # common practice
+MIN_ITEMS = 3  # items a drafted factor needs (see the module's docstring)
 _PLAIN_NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
 _LINE = 96
 
@@ -118,9 +122,7 @@ def draft_model(names: tuple[str, ...], pattern: np.ndarray, threshold: float = 
     for group in members:
         group.sort(key=lambda item: -item.loading)
     sizes = [len(group) for group in members]
-    written = [size >= 2 for size in sizes]
-    if sum(written) == 1 and sizes[written.index(True)] < 3:
-        written = [False] * m
+    written = [size >= MIN_ITEMS for size in sizes]
     cut = _two(threshold)
     about = printable(description).strip()
     heading = "Draft model from an exploratory factor analysis" + (f": {about}" if about else "") + "."
@@ -141,8 +143,13 @@ def draft_model(names: tuple[str, ...], pattern: np.ndarray, threshold: float = 
                 lines.append(f"# {labels[k]}: negative loading{'s' if len(negative) > 1 else ''} for "
                              f"{', '.join(negative)} (reverse-worded item{'s' if len(negative) > 1 else ''}?)")
         elif group:
-            lines.append(f"# {labels[k]} is left out: its {len(group)} item{'s' if len(group) > 1 else ''} "
-                         f"({', '.join(items)}) cannot identify a factor here; decide whether to add items or drop it")
+            why = ("one item cannot identify a factor" if len(group) == 1 else
+                   "a factor of two items is identified only through its correlations with other factors and often "
+                   "fails as inadmissible on new data")
+            lines.extend("# " + line for line in textwrap.wrap(
+                f"{labels[k]} is left out: it has {len(group)} item{'s' if len(group) > 1 else ''} "
+                f"({', '.join(items)}), fewer than {MIN_ITEMS}; {why}. Decide whether to add items or drop it.",
+                _LINE - 2))
             lines.extend(_statement(f"factor {labels[k]}:", items, prefix="# "))
         else:
             lines.append(f"# {labels[k]} has no item of its own (each item's largest loading is on another factor)")

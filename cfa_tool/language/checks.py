@@ -120,8 +120,11 @@ def _check_scaling(spec: Spec) -> None:
     factors = set(spec.factor_names)
     named: dict[str, object] = {}
     fixed_scale: dict[str, object] = {}
+    block = spec.exploratory_factors  # their zeros fix the block's orientation, not a scale
     for setting in spec.fixed:
         for ref in setting.refs:
+            if ref.names[0] in block:
+                continue
             if ref.group is None and ref.kind == "loading" and ref.names[0] in factors:
                 fixed_scale.setdefault(ref.names[0], ref)
             elif ref.group is None and ref.kind == "variance" and ref.names[0] in factors:

@@ -25,7 +25,10 @@ from cfa_tool.language.spec import (
     with_ordinal_levels,
     REFERENCE_KINDS,
     SCALING_METHODS,
+    BLOCK_ROTATIONS,
+    DEFAULT_BLOCK_ROTATION,
     BoundSetting,
+    ExploratoryBlock,
     Factor,
     Name,
     NamePair,
@@ -38,7 +41,7 @@ from cfa_tool.language.spec import (
 from cfa_tool.resources import resource_dir
 
 STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale", "in",
-                   "invariance", "noninvariant", "ordinal", "reversed", "method")
+                   "invariance", "noninvariant", "ordinal", "reversed", "method", "exploratory", "near")
 
 # Plain words for the grammar's terminals, used in "expected ..." messages.
 _TERMINAL_WORDS = {
@@ -215,6 +218,8 @@ class _Builder:
         reversed_items: list[ReverseKeying] = []
         method_factors: list[Name] = []
         level: str | None = None
+        blocks: list[ExploratoryBlock] = []
+        near_zero: list[tuple[Name, tuple[Name, ...], Tree]] = []
         for stmt in tree.children:
             kind = stmt.data
             self.group = None
@@ -291,6 +296,10 @@ class _Builder:
                 ordinal.extend(self.name_list(stmt.children[0]))
             elif kind == "method_stmt":
                 method_factors.extend(self.name_list(stmt.children[0]))
+            elif kind == "exploratory_stmt":
+                blocks.append(self.block(stmt))
+            elif kind == "near_zero_stmt":
+                near_zero.append((self.name(stmt.children[0]), self.name_list(stmt.children[1]), stmt))
             elif kind == "reversed_stmt":
                 low, high = self.number(stmt.children[1]), self.number(stmt.children[2])
                 if low >= high:
@@ -299,6 +308,17 @@ class _Builder:
                 reversed_items.append(ReverseKeying(self.name_list(stmt.children[0]), low, high, self.loc(stmt)))
             else:  # pragma: no cover - grammar and builder out of step
                 raise self.error(f"statement '{kind}' is not handled", stmt)
+        if blocks or near_zero:
+            blocks = self.attach_targets(blocks, near_zero)
+            self.check_block_use(blocks, covary, uncorrelated, fixed, freed, equal, starts, bounds, scaling,
+                                 noninvariant, method_factors, factors)
+            for block in blocks:  # the unrotated block's identification, written as the model's own statements
+                factors.extend(Factor(f, block.items) for f in block.factors)
+                scaling.append(ScaleSetting(block.factors, "variance", block.location))
+                uncorrelated.extend(NamePair(a, b) for i, a in enumerate(block.factors) for b in block.factors[i + 1:])
+                zeros = tuple(ParameterRef("loading", pair, block.location) for pair in block.echelon_zeros())
+                if zeros:
+                    fixed.append(ValueSetting(zeros, 0.0))
         if not factors:
             raise ModelError(
                 "the model declares no factors; write at least one line such as 'factor trait: item1, item2, item3'",
@@ -323,8 +343,103 @@ class _Builder:
             reversed=tuple(reversed_items),
             method=tuple(method_factors),
             invariance_level=level,
+            exploratory=tuple(blocks),
             lines=self.lines,
         ), ordinal)
+
+    def block(self, stmt: Tree) -> ExploratoryBlock:
+        """An 'exploratory factors ... from ... [rotated by ...]' statement, its counts checked: the block's items
+        must identify an exploratory analysis of their own, (p - m)^2 >= p + m (Ledermann 1937)."""
+        factors = self.name_list(stmt.children[0])
+        items = self.name_list(stmt.children[1])
+        rotation = self.name(stmt.children[2]) if len(stmt.children) > 2 else Name(DEFAULT_BLOCK_ROTATION, self.loc(stmt))
+        if rotation.text not in BLOCK_ROTATIONS:
+            guess = close_names(rotation.text, BLOCK_ROTATIONS)
+            hint = f"did you mean '{guess[0]}'?" if guess else "use " + _or_list(list(BLOCK_ROTATIONS))
+            raise self.error(f"unknown rotation '{rotation.text}' for an exploratory block; {hint}", rotation.location)
+        for names, what in ((factors, "factor"), (items, "item")):
+            seen: set[str] = set()
+            for name in names:
+                if name.text in seen:
+                    raise self.error(f"'{name}' is listed twice as an {what} of the exploratory block", name.location)
+                seen.add(name.text)
+        both = [n for n in items if n.text in {f.text for f in factors}]
+        if both:
+            raise self.error(f"'{both[0]}' is named as a factor and as an item of the same exploratory block", both[0].location)
+        p, m = len(items), len(factors)
+        if (p - m) ** 2 < p + m:
+            need = next(q for q in range(m + 1, 10 * m + 10) if (q - m) ** 2 >= q + m)
+            raise self.error(f"an exploratory block of {m} factor{'s' if m > 1 else ''} needs at least {need} items to be "
+                             f"identified ((items - factors)^2 >= items + factors; Ledermann 1937), and this one has {p}",
+                             stmt.children[1].children[0] if stmt.children[1].children else stmt)
+        return ExploratoryBlock(factors, items, rotation, self.loc(stmt))
+
+    def attach_targets(self, blocks: list[ExploratoryBlock], near_zero) -> list[ExploratoryBlock]:
+        """The 'near zero' lines given to the target-rotated block each names; every such block needs some."""
+        from dataclasses import replace
+
+        owner = {f: b for b, block in enumerate(blocks) for f in block.factor_names}
+        targets: dict[int, list] = {}
+        seen_items: set[str] = set()
+        for block in blocks:
+            for item in block.items:
+                if item.text in seen_items:
+                    raise self.error(f"'{item}' is an item of two exploratory blocks; an item belongs to one block at most",
+                                     item.location)
+            seen_items.update(block.item_names)
+        for factor, items, stmt in near_zero:
+            b = owner.get(factor.text)
+            if b is None:
+                raise self.error(f"'near zero {factor}' names no factor of an exploratory block", factor.location)
+            block = blocks[b]
+            if block.rotation.text != "target":
+                raise self.error(f"'near zero' gives targets to a target rotation, and the block of '{factor}' is rotated "
+                                 f"by {block.rotation.text}; write 'rotated by target' on its line", factor.location)
+            for item in items:
+                if item.text not in block.item_names:
+                    raise self.error(f"'{item}' is not an item of the exploratory block of '{factor}'", item.location)
+            targets.setdefault(b, []).append((factor, items))
+        out = []
+        for b, block in enumerate(blocks):
+            if block.rotation.text == "target" and b not in targets:
+                raise self.error("a block rotated by target needs its targets: lines such as 'near zero "
+                                 f"{block.factors[0]}: {block.items[-1]}' naming the loadings to aim at 0",
+                                 block.rotation.location)
+            out.append(replace(block, targets=tuple(targets.get(b, ()))))
+        return out
+
+    def check_block_use(self, blocks, covary, uncorrelated, fixed, freed, equal, starts, bounds, scaling, noninvariant,
+                        method_factors, factors) -> None:
+        """The model's other statements may not change a block's parameters: the block sets them."""
+        block_factors = {f for block in blocks for f in block.factor_names}
+        for pair in list(covary) + list(uncorrelated):
+            for name in (pair.first, pair.second):
+                if name.text in block_factors:
+                    raise self.error(f"'{name}' is a factor of an exploratory block: its covariances are estimated and "
+                                     f"rotated with the block, and cannot be set by 'covary' or 'uncorrelated'", name.location)
+        refs = [r for s in list(fixed) + list(starts) for r in s.refs] + list(freed) + [r for g in equal for r in g] \
+            + [r for b in bounds for r in b.refs] + list(noninvariant)
+        for ref in refs:
+            if any(n in block_factors for n in ref.names):
+                raise self.error(f"{ref} is a parameter of an exploratory block: the block estimates and rotates it, and "
+                                 f"other statements cannot set it", ref.location)
+        for setting in scaling:
+            named = [f for f in setting.factors if f.text in block_factors]
+            if named:
+                raise self.error(f"'{named[0]}' is a factor of an exploratory block, whose factors have variance 1 "
+                                 f"before rotation; it cannot be scaled another way", named[0].location)
+        for name in method_factors:
+            if name.text in block_factors:
+                raise self.error(f"'{name}' is a factor of an exploratory block and cannot also be a method factor",
+                                 name.location)
+        for factor in factors:
+            for ind in factor.indicators:
+                if ind.text in block_factors:
+                    raise self.error(f"'{ind}' is a factor of an exploratory block and cannot be an indicator of another "
+                                     f"factor", ind.location)
+            if factor.name.text in block_factors:
+                raise self.error(f"factor '{factor.name}' is declared twice: by 'factor' and by 'exploratory factors'",
+                                 factor.name.location)
 
     def name(self, node: Tree) -> Name:
         token = node.children[0]

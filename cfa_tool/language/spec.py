@@ -140,6 +140,51 @@ class ReverseKeying:
     location: Location
 
 
+#: The rotations an exploratory block may name (gradient-projection criteria; see exploration.rotation).
+BLOCK_ROTATIONS = ("geomin", "target", "quartimin", "varimax")
+DEFAULT_BLOCK_ROTATION = "geomin"
+
+
+@dataclass(frozen=True)
+class ExploratoryBlock:
+    """``exploratory factors F1, F2 from item1..item9 rotated by geomin``: factors whose loadings on every
+    item of the block are estimated and then rotated (exploratory structural equation modelling, Asparouhov &
+    Muthen 2009).  ``near zero F1: item4, item5`` lines give a target rotation its targeted zeros.
+
+    The parser writes the block's identification into the model as ordinary statements: each factor
+    loads on every item of the block, its variance is 1, the block's factors are uncorrelated, and the
+    loading of the j-th factor on each of the first j - 1 items is 0 (echelon form; m(m-1)/2 zeros); the
+    fitted loadings are rotated afterwards."""
+
+    factors: tuple[Name, ...]
+    items: tuple[Name, ...]
+    rotation: Name  # one of BLOCK_ROTATIONS
+    location: Location
+    targets: tuple[tuple[Name, tuple[Name, ...]], ...] = ()  # (factor, items whose loading is aimed at 0)
+
+    @property
+    def factor_names(self) -> tuple[str, ...]:
+        return tuple(f.text for f in self.factors)
+
+    @property
+    def item_names(self) -> tuple[str, ...]:
+        return tuple(i.text for i in self.items)
+
+    def echelon_zeros(self) -> tuple[tuple[str, str], ...]:
+        """(factor, item) of the loadings fixed at 0 to identify the unrotated block."""
+        return tuple((f.text, self.items[i].text) for j, f in enumerate(self.factors) for i in range(j))
+
+    def target_matrix(self) -> list[list[float]]:
+        """items x factors: 0 where a 'near zero' line aims a loading, NaN elsewhere (free)."""
+        rows = {x: i for i, x in enumerate(self.item_names)}
+        cols = {f: j for j, f in enumerate(self.factor_names)}
+        target = [[float("nan")] * len(cols) for _ in rows]
+        for factor, items in self.targets:
+            for item in items:
+                target[rows[item.text]][cols[factor.text]] = 0.0
+        return target
+
+
 @dataclass(frozen=True)
 class Spec:
     """Everything a model file says, in the order it said it."""
@@ -162,6 +207,7 @@ class Spec:
     reversed: tuple[ReverseKeying, ...] = ()
     method: tuple[Name, ...] = ()  # factors of method, not of a trait (wording, acquiescence): no reliability
     invariance_level: str | None = None  # the level an 'invariance' statement names
+    exploratory: tuple[ExploratoryBlock, ...] = ()  # their factors are in ``factors`` too, with their identification
     lines: tuple[str, ...] = field(default=(), repr=False, compare=False)
 
     @cached_property
@@ -178,6 +224,11 @@ class Spec:
                 if ind.text not in latent:
                     seen.setdefault(ind.text, None)
         return tuple(seen)
+
+    @property
+    def exploratory_factors(self) -> frozenset[str]:
+        """Factors of exploratory blocks."""
+        return frozenset(f for block in self.exploratory for f in block.factor_names)
 
     @property
     def method_factors(self) -> frozenset[str]:

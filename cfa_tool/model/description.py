@@ -44,9 +44,13 @@ class ModelDescription:
     invariant: tuple[str, ...]  # classes held equal across groups
     noninvariant: tuple[tuple, ...]  # parameters exempted
     method_factors: tuple[str, ...] = ()  # factors of a method of measurement, not traits
+    # exploratory blocks: (factors, items, rotation); their factors, identification and loadings are described
+    # by the block alone, not in the fields above
+    exploratory: tuple[tuple[tuple[str, ...], tuple[str, ...], str], ...] = ()
 
     def to_dict(self) -> dict:
         return {
+            "exploratory_blocks": [{"factors": list(f), "items": list(i), "rotation": r} for f, i, r in self.exploratory],
             "first_order_factors": list(self.first_order),
             "higher_order_factors": [{"factor": f, "explains": list(lower)} for f, lower in self.higher_order],
             "indicators": list(self.indicators),
@@ -79,11 +83,17 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
     """The model as fitted: from the specification (what the file says) and the parameter table
     (how the tool completed it: scales, defaults)."""
     latent = set(spec.factor_names)
+    block = spec.exploratory_factors  # described by their block
+
+    def outside(*names) -> bool:
+        return not block.intersection(names)
+
     higher = tuple((f.name.text, tuple(i.text for i in f.indicators if i.text in latent))
                    for f in spec.factors if any(i.text in latent for i in f.indicators))
-    first_order = tuple(f.name.text for f in spec.factors if any(i.text not in latent for i in f.indicators))
+    first_order = tuple(f.name.text for f in spec.factors if any(i.text not in latent for i in f.indicators)
+                        and outside(f.name.text))
     factors_of: dict[str, list[str]] = {}
-    for f in spec.factors:
+    for f in (f for f in spec.factors if outside(f.name.text)):
         for i in f.indicators:
             if i.text not in latent:
                 factors_of.setdefault(i.text, []).append(f.name.text)
@@ -91,7 +101,7 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
     residual = tuple((p.first.text, p.second.text) for p in spec.covary if p.first.text not in latent)
     exo = set(exogenous_factors(spec))
     added = tuple(p.key() for p in spec.covary if p.first.text in latent and not (p.first.text in exo and p.second.text in exo))
-    uncorrelated = tuple((p.first.text, p.second.text) for p in spec.uncorrelated)
+    uncorrelated = tuple((p.first.text, p.second.text) for p in spec.uncorrelated if outside(p.first.text, p.second.text))
     exo_first = [f for f in first_order if f in exo]
     held = {frozenset(p) for p in uncorrelated}
     correlated = any(frozenset((a, b)) not in held for i, a in enumerate(exo_first) for b in exo_first[i + 1:])
@@ -104,14 +114,15 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
         factor_covariances_added=added,
         uncorrelated=uncorrelated,
         correlated_factors=correlated,
-        scales=_scales(spec, table),
+        scales=tuple(s for s in _scales(spec, table) if outside(s.factor)),
         equal=tuple(tuple(_ref(r) for r in group) for group in spec.equal),
-        fixed=tuple((_ref(ref), setting.value) for setting in spec.fixed for ref in setting.refs),
+        fixed=tuple((_ref(ref), setting.value) for setting in spec.fixed for ref in setting.refs if outside(*ref.names)),
         bounds=tuple((_ref(ref), b.lower, b.upper) for b in spec.bounds for ref in b.refs),
         ordinal=tuple(n.text for n in spec.ordinal),
         invariant=tuple(spec.invariant),
         noninvariant=tuple(_ref(r) for r in spec.noninvariant),
         method_factors=tuple(n.text for n in spec.method),
+        exploratory=tuple((b.factor_names, b.item_names, b.rotation.text) for b in spec.exploratory),
     )
 
 

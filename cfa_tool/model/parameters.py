@@ -48,7 +48,7 @@ class Parameter:
     col: int
     terms: tuple[tuple[int, float], ...]  # (index into theta, coefficient)
     offset: float
-    origin: str  # "default", "user", "scale" (fixed or tied to give a factor its scale)
+    origin: str  # "default", "user", "scale" (fixed or tied to give a factor its scale), "exploratory" (a block's echelon zero)
     group: int = 0
 
     @property
@@ -175,6 +175,10 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     """
     multi = groups is not None
     means = multi or mean_structure
+    if multi and spec.exploratory:
+        block = spec.exploratory[0]
+        raise _fail(spec, "exploratory blocks are fitted in one group only: their rotation is not held equal across "
+                          "groups; fit each group on its own, or declare the factors with 'factor' lines", block.location)
     group_labels = tuple(groups) if multi else ("",)
     G = len(group_labels)
     latent = spec.factor_names
@@ -245,9 +249,10 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             if entries[(g, *ref.key())]["fixed"] is not None and ref.kind == "mean":
                 entries[(g, *ref.key())].update(fixed=None, origin="user")
     fixed_settings = [(ref, s.value) for s in spec.fixed for ref in s.refs]
+    block_factors = spec.exploratory_factors
     for ref, value in sorted(fixed_settings, key=lambda rv: rv[0].group is not None):
-        for g in groups_of(ref):
-            entries[(g, *ref.key())].update(fixed=value, origin="user")
+        for g in groups_of(ref):  # an exploratory block's echelon zeros orient it: they set no scale
+            entries[(g, *ref.key())].update(fixed=value, origin="exploratory" if ref.names[0] in block_factors else "user")
 
     invariant = _invariant_kinds(spec)
     exceptions = {r.key() for r in spec.noninvariant}

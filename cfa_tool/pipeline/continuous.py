@@ -312,7 +312,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                       theta=theta, n_obs=n_total, data=overall, observed=table.observed, latent=table.latent, fit=fit,
                       robust=robust, estimates=estimates, modification_indices=mis, groups=group_results,
                       warnings=warnings, options=options, group_column=group_column, problems=problems,
-                      parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels)
+                      parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels, model=model)
 
 
 def estimate_rows(table: ParameterTable, values: np.ndarray, inference, standardized: np.ndarray,

@@ -375,6 +375,15 @@ def continuous_only(spec: Spec, command: str) -> Spec:
     return spec
 
 
+def without_exploratory_blocks(spec: Spec, command: str, why: str) -> Spec:
+    """Workflows whose results would describe an exploratory block's unrotated factors refuse such a model."""
+    if spec.exploratory:
+        block = spec.exploratory[0]
+        raise ModelError(f"'{command}' is not available for a model with an exploratory block: {why}; declare the "
+                         f"factors with 'factor' lines to use it", block.location, spec.source_line(block.location))
+    return spec
+
+
 def check_ordinal_options(fit_options) -> None:
     if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test not in (FitTest.NORMAL, FitTest.ROBUST):
         raise OptionError("ordinal items are fitted with listwise deletion and their own adjusted test; full-information "

@@ -232,7 +232,8 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
                       theta=theta, n_obs=n, data=summary, observed=table.observed, latent=table.latent, fit=fit,
                       robust=robust, estimates=estimates, modification_indices=modification, groups=(group,),
                       warnings=warnings, options=options, problems=problems,
-                      parameter_covariance=cov_theta if opt.converged else None, parameter_labels=table.free_labels)
+                      parameter_covariance=cov_theta if opt.converged else None, parameter_labels=table.free_labels,
+                      model=model)
 
 
 # ---------------------------------------------------------------- several groups

@@ -201,6 +201,7 @@ class FitResult(Presentable):
     problems: tuple = ()  # assessment.admissibility.Problem: what makes the solution impossible or doubtful
     parameter_covariance: np.ndarray | None = field(repr=False, default=None)  # of the free parameters (theta)
     parameter_labels: tuple[str, ...] = ()  # one per free parameter
+    exploratory: tuple = ()  # exploration.blocks.RotatedBlock per exploratory block of the model
 
     def cov_params(self):
         """The covariance matrix of the free parameters' estimates (the one the standard errors come from:
@@ -315,6 +316,8 @@ class FitResult(Presentable):
         if self.labels is not None:
             out["labels"] = {"variables": self.labels["variables"],
                              "values": {k: {str(code): text for code, text in v.items()} for k, v in self.labels["values"].items()}}
+        if self.exploratory:
+            out["exploratory_blocks"] = [block.to_dict() for block in self.exploratory]
         out["modification_indices"] = [clean(m.to_dict()) for m in self.reported_modification_indices()]
         out["warnings"] = list(self.warnings)
         return out
@@ -330,12 +333,29 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
                n_obs: int, data: DataSummary, observed: tuple[str, ...], latent: tuple[str, ...], fit: FitIndices | None,
                robust: RobustFit | None, estimates, modification_indices, groups, warnings, options,
                group_column: str | None = None, problems: tuple = (), parameter_covariance: np.ndarray | None = None,
-               parameter_labels: tuple[str, ...] = ()) -> FitResult:
+               parameter_labels: tuple[str, ...] = (), model=None) -> FitResult:
     """The one place a FitResult is assembled, for every estimator (continuous, incomplete and ordinal
     items, one group or several), from the estimation's and the assessment's pieces.  The model's
     names and text come from ``spec``, the estimator line from ``method``, the display settings of
-    modification indices from ``options``."""
+    modification indices from ``options``.  ``model`` (model.implied.StructuredModel) is needed when the model has
+    exploratory blocks: they are rotated here, and the modification indices that name their factors are left out
+    (they would test the unrotated factors, which the report does not show)."""
     groups = tuple(groups)
+    blocks = ()
+    if spec.exploratory:
+        from cfa_tool.exploration.blocks import rotate_blocks
+
+        blocks = rotate_blocks(model, spec, theta if converged else None, parameter_covariance)
+        inside = spec.exploratory_factors
+        modification_indices = [m for m in modification_indices if not inside.intersection(m.variables)]
+        # the block's unrotated loadings and factor covariances, and coefficients computed from them, describe an
+        # arbitrary orientation: the rotated block (``exploratory``) stands in for them
+        estimates = [r for r in estimates if not inside.intersection(r.variables)]
+        from dataclasses import replace
+
+        groups = tuple(replace(g, reliability=tuple(r for r in g.reliability if r.factor not in inside),
+                               htmt=tuple(h for h in g.htmt if not inside.intersection((h.first, h.second))))
+                       for g in groups)
     return FitResult(
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
         estimator=method.sentence(len(groups)), method=method, converged=converged, iterations=iterations,
@@ -343,5 +363,5 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         estimates=tuple(estimates), modification_indices=tuple(modification_indices), groups=groups,
         group_column=group_column, warnings=tuple(warnings), mi_threshold=options.mi_threshold, mi_top=options.mi_top,
         theta=theta, problems=tuple(problems), parameter_covariance=parameter_covariance,
-        parameter_labels=tuple(parameter_labels),
+        parameter_labels=tuple(parameter_labels), exploratory=blocks,
     )

@@ -38,9 +38,11 @@ def _label(x: float, y: float, text: str, size: int = 11, anchor: str = "middle"
 
 
 
+BLOCK_LOADING_DRAWN = 0.30  # rotated loadings of exploratory blocks drawn from this size on (common practice)
 LEGEND = ("Standardized values. Ellipses: factors; rectangles: observed items; circles: residual terms (share of "
           "variance not explained); dashed arrows: loadings fixed to set a factor's scale; curved double arrows: "
           "correlations.")
+BLOCK_LEGEND = "Exploratory blocks: their rotated loadings of .30 or more in absolute value are drawn."
 
 
 def path_diagram(result, group: int = 0, legend: bool = False) -> str:
@@ -48,7 +50,7 @@ def path_diagram(result, group: int = 0, legend: bool = False) -> str:
     parameter is part of a problem of the solution (a negative residual variance, a correlation beyond
     +/-1, ...) are drawn in red with the class ``problem``."""
     label = result.groups[group].label
-    rows = [r for r in result.estimates if r.group == label]
+    rows = [r for r in result.estimates if r.group == label] + _block_rows(result)
     problems = getattr(result, "problems", ())
 
     def flagged(kind: str, variables: tuple[str, ...]) -> bool:
@@ -232,3 +234,26 @@ def _spread_factors(latent: list[str], level: dict[str, int], centre: dict[str, 
             need = _ellipse_rx(a) + _ellipse_rx(b) + 16
             if centre[b] - centre[a] < need:
                 centre[b] = centre[a] + need
+
+
+def _block_rows(result) -> list:
+    """The rotated exploratory blocks as rows to draw: loadings of .30 or more in absolute value (the block's
+    report table shows every loading) and the rotated factors' correlations."""
+    from types import SimpleNamespace
+
+    out = []
+    for block in getattr(result, "exploratory", ()):
+        for i, item in enumerate(block.items):
+            for j, factor in enumerate(block.factors):
+                if abs(block.standardized[i, j]) >= BLOCK_LOADING_DRAWN:
+                    out.append(SimpleNamespace(kind="loading", variables=(factor, item), free=True, group=None,
+                                               standardized=float(block.standardized[i, j])))
+        m = len(block.factors)
+        if block.oblique:
+            out += [SimpleNamespace(kind="factor_covariance", variables=(block.factors[b], block.factors[a]), free=True,
+                                    group=None, standardized=float(block.correlations[a, b]))
+                    for a in range(m) for b in range(a)]
+        out += [SimpleNamespace(kind="factor_covariance", variables=(f, g), free=True, group=None,
+                                standardized=float(block.other_correlations[a, k]))
+                for a, f in enumerate(block.factors) for k, g in enumerate(block.other_factors)]
+    return out

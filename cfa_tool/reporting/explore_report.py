@@ -92,26 +92,40 @@ def loading_table(result, structure: bool = False) -> ReportTable:
     order = result.order or tuple(range(len(result.items)))
     shown = matrix[list(order)]
     threshold = ex.draft.threshold
+    errors = ex.errors.pattern[list(order)] if (not structure and ex.errors is not None
+                                                and ex.errors.unavailable is None) else None
     rows = []
     for i, k in enumerate(order):
-        cells = [result.items[k]] + [unit(v, 2) for v in shown[i]]
+        if errors is None:
+            cells = [result.items[k]] + [unit(v, 2) for v in shown[i]]
+        else:  # each loading with its standard error beside it
+            cells = [result.items[k]] + [c for v, e in zip(shown[i], errors[i])
+                                         for c in (unit(v, 2), num(e, 3) if np.isfinite(e) else "")]
         if not structure:
             cells += [unit(ex.communalities[k], 2), "at bound" if result.items[k] in ex.solution.at_bound else ""]
         rows.append(cells)
-    cols = [("Item", "l")] + [(n, "r") for n in names]
+    cols = [("Item", "l")] + ([(n, "r") for n in names] if errors is None else
+                              [c for n in names for c in ((n, "r"), ("SE", "r"))])
     if not structure:
         cols += [("Communality", "r"), ("Problem", "l")]
     title = ("Structure loadings (correlations of items with factors)" if structure else
              "Pattern loadings" + (" (oblique rotation)" if ex.rotated.oblique else ""))
     note = (f"Items sorted by the factor of their largest loading, then by its size. Loadings below {unit(threshold, 2)} "
             f"in absolute value are shown faintly.")
-    if not structure and ex.errors is not None and ex.errors.unavailable is None:
-        note += (" Standard errors of the pattern loadings (delta method; normal theory for Pearson correlations) are in "
-                 "the JSON output.")
+    why_not = {"unrotated-several-factors": "the unrotated loadings of several factors are not a rotation's optimum",
+               "uniqueness-at-bound": "a uniqueness is at its bound",
+               "singular-information": "the information matrix is singular"}
+    if not structure and ex.errors is not None and ex.errors.unavailable is not None:
+        note += f" No standard errors: {why_not.get(ex.errors.unavailable.value, ex.errors.unavailable.value)}."
+    if errors is not None:
+        note += (" SE: standard errors of the pattern loadings by the delta method (Jennrich 1973; " +
+                 ("normal theory for Pearson correlations" if ex.errors.normal_theory else
+                  "from the asymptotic covariance of the polychoric correlations") + ").")
     at_bound = tuple(i for i, k in enumerate(order) if result.items[k] in ex.solution.at_bound) if not structure else ()
     return ReportTable(("structure" if structure else "pattern"), title, tuple(c for c, _ in cols),
                        tuple(a for _, a in cols), tuple(tuple(r) for r in rows), note, at_bound,
-                       faint=_faint(shown, threshold))
+                       faint=_faint(shown, threshold) if errors is None else
+                       tuple((int(i), int(1 + 2 * j)) for i, j in zip(*np.nonzero(np.abs(shown) < threshold))))
 
 
 def factor_correlation_table(result) -> ReportTable | None:

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from cfa_tool.version import __version__
 from cfa_tool.reporting import tables as T
-from cfa_tool.reporting.diagram import LEGEND, path_diagram
+from cfa_tool.reporting.diagram import BLOCK_LEGEND, LEGEND, path_diagram
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
@@ -109,6 +109,8 @@ def html_report(result) -> str:
         *(f'<div class="diagram">{path_diagram(result, g)}</div>' for g in range(len(result.groups))),
         f'<p class="note">{esc(LEGEND)}</p>',
     ]
+    if getattr(result, "exploratory", ()):
+        sections.append(f'<p class="note">{esc(BLOCK_LEGEND)}</p>')
     if result.fit is not None and result.converged:
         sections += ["<h2>Fit</h2>", table_html(T.fit_table(result))]
         sections += [f'<p class="note">{esc(line)}</p>' for line in T.normality_lines(result)]

@@ -66,7 +66,9 @@ def _structure(result, d) -> str:
     noun = "trait factor" if methods else "factor"
     held = {frozenset(p) for p in d.uncorrelated}
     pairs = [frozenset((a, b)) for i, a in enumerate(traits) for b in traits[i + 1:]]
-    if n_first == 1:
+    if n_first == 0:
+        factors = ""
+    elif n_first == 1:
         factors = f"one {noun} ({traits[0]})"
     else:
         if pairs and all(p in held for p in pairs):
@@ -79,6 +81,8 @@ def _structure(result, d) -> str:
     if methods:
         named = [f for f in d.first_order if f in methods]
         factors += f" and {_count(len(named), 'method factor')} ({_list(named)})"
+    blocks = [f"{_count(len(f), 'exploratory factor')} ({_list(list(f))})" for f, _, _ in d.exploratory]
+    factors = _list(([factors] if factors else []) + blocks)
     text = f"{_count(len(d.indicators), 'indicator')} of {factors}"
     for higher, lower in d.higher_order:
         text += f", with a higher-order factor ({higher}) explaining {_list(lower)},"
@@ -126,6 +130,26 @@ def _scale_sentence(d) -> str:
             parts.append(f"{subject} set by parameters the model fixes")
     sentence = "; ".join(parts)
     return sentence[0].upper() + sentence[1:] + "."
+
+
+def _block_sentences(result, d) -> str:
+    """What an exploratory block is and how it was fitted and rotated (Asparouhov & Muthen 2009)."""
+    rotated = {b.factors: b for b in getattr(result, "exploratory", ())}
+    out = []
+    for factors, items, rotation in d.exploratory:
+        block = next((b for b in rotated.values() if set(b.factors) == set(factors)), None)
+        kind = "oblique" if block is None or block.oblique else "orthogonal"
+        target = " towards the zeros the model file names (partially specified target; Browne 1972)" \
+            if rotation == "target" else ""
+        out.append(f"The loadings of {_list(list(factors))} on every one of {_count(len(items), 'item')} "
+                   f"({_list(list(items))}) were estimated as an exploratory block (exploratory structural equation "
+                   f"modelling; Asparouhov & Muthen, 2009): fitted with the factors' variances fixed to 1, uncorrelated, "
+                   f"and the loading of the k-th factor on each of the block's first k - 1 items fixed at 0, then "
+                   f"rotated by {rotation} ({kind}){target} on the loadings standardized by the items' model-implied "
+                   f"standard deviations; the rotation does not change the fit. Standard errors of the rotated loadings "
+                   f"and factor correlations are delta-method values (implicit differentiation of the rotation's "
+                   f"conditions), and modification indices that name the block's factors are not reported.")
+    return " ".join(out)
 
 
 def _departures(d) -> str:
@@ -215,7 +239,10 @@ def methods_paragraph(result) -> str:
     if d is not None:
         parts.append(f"A confirmatory factor analysis with {_structure(result, d)} was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
-        parts.append(_scale_sentence(d))
+        if d.scales:
+            parts.append(_scale_sentence(d))
+        if d.exploratory:
+            parts.append(_block_sentences(result, d))
         departures = _departures(d)
         if departures:
             parts.append(departures)
@@ -239,11 +266,14 @@ def methods_paragraph(result) -> str:
                          f"reported only so that the problem can be judged.")
     parts.append(_fit_sentence(result))
     loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed]
+    blocks = getattr(result, "exploratory", ())
     if loadings:
-        parts.append(f"Standardized loadings ranged from {unit(min(loadings), 2)} to {unit(max(loadings), 2)}.")
+        which = "on the confirmatory factors " if blocks else ""
+        parts.append(f"Standardized loadings {which}ranged from {unit(min(loadings), 2)} to {unit(max(loadings), 2)}.")
     corr = [r.standardized for r in result.estimates if r.kind == "factor_covariance"]
     if corr and not result.multigroup:
-        parts.append(f"Factor correlations ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}.")
+        which = " of the confirmatory factors" if blocks else ""
+        parts.append(f"Factor correlations{which} ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}.")
     if result.fit.df > 0 and not inadmissible:
         parts.append("Fit was judged against conventional guide values (e.g., CFI \u2265 .95, RMSEA \u2264 .06, "
                      "SRMR \u2264 .08; Hu & Bentler, 1999), which are conventions rather than strict criteria.")

@@ -3,7 +3,7 @@ every reporter: terminal, HTML, Markdown, LaTeX and CSV format the same tables."
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -242,7 +242,8 @@ def _factor_matrix(result, group: int) -> ReportTable | None:
     """The factors' variances (diagonal) and correlations (below it) as one small matrix; each covariance
     with its SE and interval in the data-file version."""
     label = result.groups[group].label
-    latent = list(result.latent)
+    rotated = {f for block in getattr(result, "exploratory", ()) for f in block.factors}  # shown by their block
+    latent = [f for f in result.latent if f not in rotated]
     if not latent:
         return None
     variance = {r.variables[0]: r for r in result.estimates if r.kind == "factor_variance" and r.group == label}
@@ -299,6 +300,8 @@ def estimate_tables(result, group: int = 0) -> list[ReportTable]:
                 mark = "R² above 1: impossible"
             marks.append(mark)
         tables.append(_factor_block(result, group, k, factor, rows, residual, marks))
+    if group == 0 and getattr(result, "exploratory", ()):
+        tables.extend(block_tables(result))
     matrix = _factor_matrix(result, group)
     if matrix is not None:
         tables.append(matrix)
@@ -637,3 +640,70 @@ def local_fit_line(result) -> str | None:
 def status_line(result) -> str:
     status = f"converged in {result.iterations} iterations" if result.converged else f"DID NOT CONVERGE ({result.message})"
     return f"Estimation: {result.estimator}, {status}"
+
+
+# ---------------------------------------------------------------- exploratory blocks
+# the rotated loading matrix of each block (small loadings faint) with standard errors, and the rotated factors' correlations
+SMALL_LOADING = 0.30  # shown faintly (common practice; the draft model's threshold too)
+
+
+def _rotation_words(block) -> str:
+    return f"{block.rotation.value} rotation, {'oblique' if block.oblique else 'orthogonal'}"
+
+
+def _block_loading_table(block, k: int) -> ReportTable:
+    p, m = block.standardized.shape
+    columns = [("Item", "l")]
+    for f in block.factors:
+        columns += [(f, "r"), ("SE", "r")]
+    rows, faint, numbers = [], [], []
+    for i, item in enumerate(block.items):
+        cells = [item]
+        for j in range(m):
+            value, se = block.standardized[i, j], block.standardized_se[i, j]
+            cells += [unit(value, 2) if abs(value) <= 1 else num(value, 2), num(se, 3) if np.isfinite(se) else ""]
+            if abs(value) < SMALL_LOADING:
+                faint += [(i, 1 + 2 * j), (i, 2 + 2 * j)]
+            numbers.append([item, block.factors[j], value, se, block.pattern[i, j], block.pattern_se[i, j]])
+        rows.append(cells)
+    note = (f"Standardized loadings after {_rotation_words(block)}; below {unit(SMALL_LOADING, 2)} in absolute value "
+            f"shown faintly. SE: delta method (implicit differentiation of the rotation's conditions). The block was "
+            f"fitted unrotated (factor variances 1, factors uncorrelated, echelon zeros); the rotation does not change "
+            f"the fit.")
+    if block.rotation.value != "target":
+        note += " Factors are ordered by their sums of squared loadings; their names follow that order."
+    if not block.converged:
+        note += " The rotation did not converge: these loadings are not its optimum."
+    table = _table(f"exploratory_block_{k + 1}", f"Exploratory block {', '.join(block.factors)} ({_rotation_words(block)})",
+                   columns, rows, note,
+                   values=(["Item", "Factor", "Standardized loading", "SE", "Loading", "Its SE"], numbers))
+    return replace(table, faint=tuple(faint))
+
+
+def _block_correlation_table(block, k: int) -> ReportTable | None:
+    m = len(block.factors)
+    others = block.other_factors
+    if (m < 2 or not block.oblique) and not others:
+        return None
+    names = list(block.factors)
+    columns = [("Factor", "l"), ("With", "l"), ("Correlation", "r"), ("SE", "r")]
+    rows, numbers = [], []
+    pairs = [(a, names[b], block.correlations[i, b], block.correlations_se[i, b])
+             for i, a in enumerate(names) for b in range(i) if block.oblique]
+    pairs += [(a, g, block.other_correlations[i, j], block.other_correlations_se[i, j])
+              for i, a in enumerate(names) for j, g in enumerate(others)]
+    for a, b, r, se in pairs:
+        rows.append([a, b, unit(r, 2) if abs(r) <= 1 else num(r, 2), num(se, 3) if np.isfinite(se) else ""])
+        numbers.append([a, b, r, se])
+    return _table(f"exploratory_correlations_{k + 1}", f"Correlations of the rotated factors {', '.join(names)}",
+                  columns, rows, "SE: delta method.", values=(["Factor", "With", "Correlation", "SE"], numbers))
+
+
+def block_tables(result) -> list[ReportTable]:
+    out = []
+    for k, block in enumerate(getattr(result, "exploratory", ())):
+        out.append(_block_loading_table(block, k))
+        table = _block_correlation_table(block, k)
+        if table is not None:
+            out.append(table)
+    return out

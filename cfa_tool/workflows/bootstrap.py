@@ -28,7 +28,7 @@ from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import EstimationError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
-from cfa_tool.pipeline.inputs import continuous_only, converged, read_inputs
+from cfa_tool.pipeline.inputs import continuous_only, converged, read_inputs, without_exploratory_blocks
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.parallel import run_tasks
 
@@ -222,6 +222,8 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     replications, seed = bootstrap_options(replications, seed, workers)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     continuous_only(spec, "bootstrap")
+    without_exploratory_blocks(spec, "bootstrap", "it resamples the parameters, and a block's rotated loadings are "
+                                                  "not among them")
     moments = sample_moments(frame, spec.observed_names, source)
     result = converged(fit_moments(spec, moments, FitOptions()))
     order = [moments.names.index(n) for n in result.observed]

@@ -8,6 +8,8 @@ that the confirmation half played no part in choosing the model.
 
 from __future__ import annotations
 
+from pathlib import Path
+
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -161,6 +163,7 @@ class ExploreResult(Presentable):
             },
             "draft": {"text": self.draft_text, "factor_names": list(ex.draft.factor_names),
                       "usable": ex.draft.usable, "threshold": ex.draft.threshold,
+                      "written": [name for name, w in zip(ex.draft.factor_names, ex.draft.written) if w],
                       "placements": [{"item": p.item, "placement": p.placement.value,
                                       "factor": ex.draft.factor_names[p.factor], "loading": p.loading}
                                      for p in ex.draft.placements]},
@@ -256,8 +259,9 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
 
     ``items``: column names, or text 'a, b, c' with 'a..b' for a span of columns (default: every column that
     holds numbers); ``factors``: a whole number, or None / 'auto' for the recommended number; ``rotation``:
-    varimax, quartimin (default), oblimin, geomin, promax, target (with ``target``, a matrix with NaN where
-    unspecified) or none; ``extraction``: maximum-likelihood (default) or least-squares; ``ordinal``: 'all' or
+    varimax, quartimin (default), oblimin, geomin, promax, target (with ``target``: a matrix with NaN where
+    unspecified, or the path of a target file, exploration.target_file, whose columns give the number of
+    factors) or none; ``extraction``: maximum-likelihood (default) or least-squares; ``ordinal``: 'all' or
     items to analyse by polychoric correlations; ``split``: a seed: explore one random half of the rows and fit
     the draft model on the other; ``replications`` and ``seed``: of parallel analysis and the rotation's random
     starts; ``threshold``: the loading at which an item counts on a factor in the draft model.
@@ -296,8 +300,22 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     rotation_method = options.choice(RotationMethod, rotation, "the rotation")
     extraction_method = options.choice(ExtractionMethod, extraction, "the extraction")
     if rotation_method is RotationMethod.TARGET and target is None:
-        raise OptionError("target rotation needs a target matrix (loadings to aim at, NaN where unspecified), which the "
-                          "Python entry point takes (target=...); choose another rotation here")
+        raise OptionError("target rotation needs a target: a target file (--target FILE; items by factors, 0 where a "
+                          "loading is aimed at zero, empty where free) or, from Python, a matrix (target=...)")
+    if target is not None and rotation_method is not RotationMethod.TARGET:
+        raise OptionError(f"a target applies to target rotation only, not to {rotation_method.value}")
+    if isinstance(target, (str, Path)):
+        from cfa_tool.exploration.target_file import read_target_file
+
+        target_file = read_target_file(target)
+        target = target_file.matrix(tuple(chosen))
+        if requested is None:
+            requested = len(target_file.factors)
+            notes.append(f"Factors: {requested}, the columns of the target file {target_file.source} "
+                         f"({', '.join(target_file.factors)}).")
+        elif requested != len(target_file.factors):
+            raise OptionError(f"--factors asks for {requested} factors, and the target file {target_file.source} has "
+                              f"{len(target_file.factors)} factor columns")
     ordinal_items = _ordinal_items(ordinal, chosen)
     halves = None
     if split is not None:

@@ -200,6 +200,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     fit_options = api.make_options(options)
     spec, loaded, notes = api.read_inputs_with_notes(model, data, sheet, missing_codes, keep,
                                                      (id_column,) if isinstance(id_column, str) else ())
+    api.without_exploratory_blocks(spec, "scores", "its factors' scores would be those of the unrotated block")
     frame, source = loaded.frame, loaded.source
     read_frame = loaded.read_frame if loaded.read_frame is not None else frame
     read_index = read_frame.index
@@ -293,6 +294,9 @@ def models_of_fit(result: FitResult) -> tuple[list, list]:
     if result.theta is None:
         raise OptionError("this result holds no estimates to score with (a fit to summary statistics?)")
     spec = parse_model(result.model_text, source=result.model_source)
+    from cfa_tool.pipeline.inputs import without_exploratory_blocks
+
+    without_exploratory_blocks(spec, "scores", "its factors' scores would be those of the unrotated block")
     labels = tuple(g.label for g in result.groups) if result.multigroup else None
     mean_structure = result.multigroup or any(r.kind == "intercept" for r in result.estimates)
     table, model = model_structure(spec, labels, mean_structure)

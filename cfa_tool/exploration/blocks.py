@@ -1,0 +1,206 @@
+"""Rotation of the exploratory blocks of a fitted confirmatory model (exploratory structural equation
+modelling; Asparouhov & Muthen 2009).
+
+A block's factors are fitted in the rotational identification of exploratory factor analysis
+(factor variances 1, factors uncorrelated, the j-th factor's loadings on the block's first j - 1
+items fixed at 0; see ``language.spec.ExploratoryBlock``).  Its loadings are then rotated as an
+exploratory solution is (``exploration.rotation``, gradient projection): the unrotated loadings A
+are standardized by the items' model-implied standard deviations (so that the rotation does not
+depend on the items' units, as an exploratory analysis of correlations does), the rotation gives
+the transformation M, and
+
+    standardized pattern  L* = D^-1 A M,   pattern L = A M,
+    factor correlations   Phi* = M^-1 M^-1'  (identity for an orthogonal rotation),
+    with another factor g  cov(f*, g) = M^-1 cov(f, g)   (the rotated factors have variance 1).
+
+The chi-square, degrees of freedom and modification indices of the model do not depend on the
+rotation: every rotation of A gives the same implied moments.
+
+Standard errors by the delta method: the covariance of the rotated quantities is J acov(theta) J'
+with J the total derivative of the rotated quantities with respect to the free parameters theta.
+The rotation T(theta) is defined implicitly by the rotation's first-order conditions
+F(T, theta) = 0 (``rotation.stationarity``, with unit-length columns of T for oblique and T'T = I for
+orthogonal rotations), so by implicit differentiation dT/dtheta = -F_T^-1 F_theta; the partial
+derivatives F_T, F_theta and those of the rotated quantities in theta and T are central
+differences of these smooth, explicit functions (step 1e-6).  This is the delta method for
+rotated loadings of Jennrich (1973), as Asparouhov & Muthen (2009) apply it to a model's blocks.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from cfa_tool import options
+from cfa_tool.exploration.choices import RotationMethod
+from cfa_tool.exploration.rotation import RotatedSolution, RotationSpec, rotate, stationarity
+from cfa_tool.numerics.plain import clean
+
+_STEP = 1e-6  # central differences
+
+
+@dataclass(frozen=True, eq=False)
+class RotatedBlock:
+    """One exploratory block of a fitted model, rotated, with delta-method standard errors."""
+
+    factors: tuple[str, ...]  # in the reported order (geomin, quartimin, varimax: largest sum of squares first)
+    items: tuple[str, ...]
+    rotation: RotationMethod
+    oblique: bool
+    pattern: np.ndarray  # items x factors, in the items' units
+    pattern_se: np.ndarray
+    standardized: np.ndarray  # items x factors, by the items' model-implied standard deviations
+    standardized_se: np.ndarray
+    correlations: np.ndarray  # factors x factors
+    correlations_se: np.ndarray
+    other_factors: tuple[str, ...]  # the model's other factors that covary freely with the block
+    other_correlations: np.ndarray  # factors x other factors
+    other_correlations_se: np.ndarray
+    criterion_value: float
+    converged: bool
+    starts: int
+    starts_at_best: int
+    target: np.ndarray | None = None  # items x factors: 0 where aimed, NaN where free
+
+    def to_dict(self) -> dict:
+        return clean({
+            "factors": list(self.factors), "items": list(self.items), "rotation": self.rotation.value,
+            "oblique": self.oblique, "pattern": self.pattern.tolist(), "pattern_se": self.pattern_se.tolist(),
+            "standardized": self.standardized.tolist(), "standardized_se": self.standardized_se.tolist(),
+            "factor_correlations": self.correlations.tolist(), "factor_correlations_se": self.correlations_se.tolist(),
+            "other_factors": list(self.other_factors), "other_correlations": self.other_correlations.tolist(),
+            "other_correlations_se": self.other_correlations_se.tolist(), "criterion": self.criterion_value,
+            "rotation_converged": self.converged, "starts": self.starts, "starts_at_best": self.starts_at_best,
+            "standard_errors": "delta method (implicit differentiation of the rotation's conditions)",
+            "target": self.target.tolist() if self.target is not None else None,
+        })
+
+
+def block_rotation_spec(block) -> RotationSpec:
+    """The rotation a block names, checked (defaults of ``exploration.rotation``)."""
+    method = options.choice(RotationMethod, block.rotation.text, "the rotation")
+    target = np.array(block.target_matrix(), dtype=float) if method is RotationMethod.TARGET else None
+    return RotationSpec(method, target=target).checked(len(block.items), len(block.factors))
+
+
+class _Layout:
+    """Where a block's pieces sit in the model's matrices."""
+
+    def __init__(self, model, block, block_factors: frozenset[str]):
+        table = model.table
+        self.model = model
+        self.rows = np.array([table.observed.index(x) for x in block.item_names])
+        self.cols = np.array([table.latent.index(f) for f in block.factor_names])
+        inside = set(block_factors)  # the factors of other blocks rotate too: their correlations are not reported
+        free_cov = {p.variables for p in table.parameters if p.kind == "factor_covariance" and p.free}
+        self.others = tuple(g for g in table.latent if g not in inside
+                            and any((f, g) in free_cov or (g, f) in free_cov for f in block.factor_names))
+        self.other_cols = np.array([table.latent.index(g) for g in self.others], dtype=int)
+
+    def pieces(self, theta: np.ndarray):
+        """(A, D, C, g_var): unrotated loadings, implied SDs of the items, covariances with other factors and
+        their variances."""
+        mats = self.model.matrices(theta)
+        A = mats.L[np.ix_(self.rows, self.cols)]
+        sd = np.sqrt(np.diag(mats.implied_covariance())[self.rows])
+        phi = mats.latent_covariance()
+        C = phi[np.ix_(self.cols, self.other_cols)]
+        return A, sd, C, np.diag(phi)[self.other_cols]
+
+
+def _transformation(T: np.ndarray, rotated: RotatedSolution) -> np.ndarray:
+    """M of the reported solution from the gradient-projection matrix T (order and signs as reported)."""
+    M = np.linalg.inv(T).T if rotated.oblique else T
+    return (M * np.asarray(rotated.signs))[:, list(rotated.column_order)]
+
+
+def _conditions(T: np.ndarray, As: np.ndarray, spec: RotationSpec) -> np.ndarray:
+    """F(T, A) = 0 at the rotation: the criterion's first-order conditions and T's own constraints."""
+    m = T.shape[0]
+    criterion = spec.criterion()
+    if spec.oblique:
+        L, Phi = As @ np.linalg.inv(T).T, T.T @ T
+        return np.concatenate([stationarity(L, Phi, criterion, True, spec.row_normalization), np.sum(T * T, axis=0) - 1])
+    rows, cols = np.triu_indices(m)
+    return np.concatenate([stationarity(As @ T, np.eye(m), criterion, False, spec.row_normalization),
+                           (T.T @ T - np.eye(m))[rows, cols]])
+
+
+def _central(function, x: np.ndarray) -> np.ndarray:
+    columns = []
+    for k in range(x.size):
+        up, down = x.copy(), x.copy()
+        up.flat[k] += _STEP
+        down.flat[k] -= _STEP
+        columns.append((np.ravel(function(up)) - np.ravel(function(down))) / (2.0 * _STEP))
+    return np.column_stack(columns)
+
+
+def rotate_block(model, block, theta: np.ndarray, acov: np.ndarray | None,
+                 block_factors: frozenset[str] = frozenset()) -> RotatedBlock:
+    """Rotate one exploratory block of the model fitted at ``theta`` (``acov``: the covariance of theta,
+    None for no standard errors; ``block_factors``: the factors of every block of the model)."""
+    layout = _Layout(model, block, block_factors | frozenset(block.factor_names))
+    spec = block_rotation_spec(block)
+    A, sd, C, g_var = layout.pieces(theta)
+    p, m = A.shape
+    rotated = rotate(A / sd[:, None], spec)
+    M = rotated.transformation
+    # the gradient-projection matrix T of the reported solution, before its columns were ordered and signed
+    order = np.asarray(rotated.column_order)
+    unordered = np.empty_like(M)
+    unordered[:, order] = M
+    M0 = unordered / np.asarray(rotated.signs)
+    T = np.linalg.inv(M0).T if rotated.oblique else M0
+
+    def outputs(theta_: np.ndarray, T_: np.ndarray) -> np.ndarray:
+        A_, sd_, C_, g_ = layout.pieces(theta_)
+        M_ = _transformation(T_, rotated)
+        Mi = np.linalg.inv(M_)
+        pattern = A_ @ M_
+        phi = Mi @ Mi.T
+        other = (Mi @ C_) / np.sqrt(g_)[None, :] if len(g_) else np.zeros((m, 0))
+        return np.concatenate([pattern.ravel(), (pattern / sd_[:, None]).ravel(), phi.ravel(), other.ravel()])
+
+    values = outputs(theta, T)
+    sizes = [p * m, p * m, m * m, m * len(layout.others)]
+    pieces = np.split(values, np.cumsum(sizes)[:-1])
+    se = [np.full_like(v, np.nan) for v in pieces]
+    if acov is not None and spec.method is not RotationMethod.NONE and m > 1:
+        def standardized(th):
+            A_, sd_ = layout.pieces(th)[:2]
+            return A_ / sd_[:, None]
+
+        As = standardized(theta)
+        F_T = _central(lambda t: _conditions(t.reshape(m, m), As, spec), T.ravel())
+        F_theta = _central(lambda th: _conditions(T, standardized(th), spec), theta)
+        if np.linalg.cond(F_T) < 1e12:
+            dT = -np.linalg.solve(F_T, F_theta)
+            J = _central(lambda th: outputs(th, T), theta) + _central(lambda t: outputs(theta, t.reshape(m, m)), T.ravel()) @ dT
+            cov = J @ acov @ J.T
+            se = np.split(np.sqrt(np.clip(np.diag(cov), 0.0, None)), np.cumsum(sizes)[:-1])
+    elif acov is not None:
+        J = _central(lambda th: outputs(th, T), theta)
+        se = np.split(np.sqrt(np.clip(np.diag(J @ acov @ J.T), 0.0, None)), np.cumsum(sizes)[:-1])
+    phi_se = se[2].reshape(m, m)
+    phi_se[np.diag_indices(m)] = 0.0
+    if not spec.oblique:
+        phi_se[:] = 0.0
+    names = tuple(block.factor_names[k] for k in range(m))
+    return RotatedBlock(
+        factors=names, items=block.item_names, rotation=spec.method, oblique=bool(spec.oblique),
+        pattern=pieces[0].reshape(p, m), pattern_se=se[0].reshape(p, m),
+        standardized=pieces[1].reshape(p, m), standardized_se=se[1].reshape(p, m),
+        correlations=pieces[2].reshape(m, m), correlations_se=phi_se,
+        other_factors=layout.others, other_correlations=pieces[3].reshape(m, len(layout.others)),
+        other_correlations_se=se[3].reshape(m, len(layout.others)),
+        criterion_value=rotated.criterion_value, converged=rotated.converged, starts=rotated.starts,
+        starts_at_best=rotated.starts_at_best, target=spec.target)
+
+
+def rotate_blocks(model, spec, theta: np.ndarray | None, acov: np.ndarray | None) -> tuple[RotatedBlock, ...]:
+    """Every exploratory block of ``spec`` (a fitted single-group model), rotated; none without estimates."""
+    if theta is None or not spec.exploratory:
+        return ()
+    return tuple(rotate_block(model, block, theta, acov, spec.exploratory_factors) for block in spec.exploratory)

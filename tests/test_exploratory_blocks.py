@@ -1,0 +1,240 @@
+"""Exploratory blocks in a confirmatory model ('exploratory factors ... from ...'), on Holzinger & Swineford
+(1939), x1..x9, N = 301.
+
+* A block of m factors over all items is the m-factor exploratory ML factor analysis: the same
+  chi-square and df as the project's explore extraction (its own iteration, Joreskog 1967) and the
+  same log-likelihood as scikit-learn's FactorAnalysis (an independent implementation: N times its
+  mean log-likelihood per row).  The df of an m-factor analysis of p items,
+  ((p - m)^2 - (p + m)) / 2, is 12 for 9 items and 3 factors (Lawley & Maxwell 1971, ch. 4).
+* Any rotation of the block leaves its fit unchanged, and target rotation of the block gives the
+  rotated loadings of the exploratory solution rotated to the same target (explore's rotation).
+* Standard errors of rotated loadings and factor correlations (implicit differentiation of the
+  rotation's conditions) agree with a delta method written here from finite differences of the whole
+  rotation rerun from scratch at perturbed estimates.
+* A block beside an ordinary factor has the fit semopy (an independent implementation) finds for the
+  same model in an equivalent identification (anchor items; Joreskog 1969).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+import cfa_tool
+from cfa_tool.data.moments import sample_moments
+from cfa_tool.errors import ModelError
+from cfa_tool.exploration import RotationMethod, RotationSpec, extract, from_sample_moments, rotate
+from cfa_tool.language.parser import parse_model
+from cfa_tool.model.implied import StructuredModel
+from cfa_tool.model.parameters import build_parameter_table
+
+ITEMS = tuple(f"x{i}" for i in range(1, 10))
+GEOMIN = "exploratory factors f1, f2, f3 from x1..x9\n"
+TARGET = ("exploratory factors visual, textual, speed from x1..x9 rotated by target\n"
+          "near zero visual: x4..x7\nnear zero textual: x1, x7..x9\nnear zero speed: x1..x6\n")
+
+
+@pytest.fixture(autouse=True)
+def _one_blas_thread():
+    from cfa_tool.numerics.threads import blas_threads_for
+
+    with blas_threads_for(1):
+        yield
+
+
+@pytest.fixture(scope="module")
+def geomin_fit(hs_data):
+    return cfa_tool.fit(GEOMIN, hs_data)
+
+
+@pytest.fixture(scope="module")
+def target_fit(hs_data):
+    return cfa_tool.fit(TARGET, hs_data)
+
+
+def test_block_over_all_items_is_the_exploratory_ml_solution(hs_data, geomin_fit):
+    from sklearn.decomposition import FactorAnalysis
+
+    efa = extract(from_sample_moments(sample_moments(hs_data, ITEMS, "hs")), 3)
+    assert geomin_fit.converged
+    assert geomin_fit.fit.df == efa.fit.df == 12  # ((9 - 3)^2 - 12) / 2 (Lawley & Maxwell 1971)
+    assert geomin_fit.fit.chi_square == pytest.approx(efa.fit.chi_square, rel=1e-6)
+    X = hs_data[list(ITEMS)].to_numpy(float)
+    theirs = FactorAnalysis(3, tol=1e-12, max_iter=200_000, svd_method="lapack").fit(X)
+    assert geomin_fit.fit.log_likelihood == pytest.approx(len(X) * theirs.score(X), rel=1e-6)
+
+
+def test_rotation_does_not_change_the_fit(geomin_fit, target_fit):
+    assert target_fit.fit.chi_square == pytest.approx(geomin_fit.fit.chi_square, rel=1e-7)
+    assert target_fit.fit.df == geomin_fit.fit.df
+
+
+def test_target_rotation_equals_the_exploratory_solution_rotated_to_the_target(hs_data, target_fit):
+    efa = extract(from_sample_moments(sample_moments(hs_data, ITEMS, "hs")), 3)
+    block = target_fit.exploratory[0]
+    theirs = rotate(efa.loadings, RotationSpec(RotationMethod.TARGET, target=block.target))
+    assert block.rotation is RotationMethod.TARGET and block.factors == ("visual", "textual", "speed")
+    np.testing.assert_allclose(block.standardized, theirs.pattern, atol=2e-4)
+    np.testing.assert_allclose(block.correlations, theirs.factor_correlations, atol=2e-4)
+
+
+def test_geomin_block_recovers_the_three_abilities(geomin_fit):
+    """Each item's largest geomin loading is on the factor of its ability (visual x1-x3, textual x4-x6,
+    speed x7-x9; Holzinger & Swineford 1939), and x9 loads on visual too, the cross-loading of these data
+    (common knowledge of these data; the largest modification index in test_holzinger_swineford_published.py)."""
+    block = geomin_fit.exploratory[0]
+    L = block.standardized
+    groups = [int(np.argmax(np.abs(L[i]))) for i in range(9)]
+    assert len({groups[0], groups[3], groups[6]}) == 3
+    assert groups[:3] == [groups[0]] * 3 and groups[3:6] == [groups[3]] * 3 and groups[6:] == [groups[6]] * 3
+    assert abs(L[8, groups[0]]) > 0.3
+
+
+def _numeric_delta(fit, text: str, data, spec_of_rotation) -> tuple[np.ndarray, np.ndarray]:
+    """SEs of the standardized rotated loadings and factor correlations: central differences (step 1e-4) of the
+    whole rotation, rerun from the unrotated start at perturbed estimates, matched to the reported columns."""
+    spec = parse_model(text)
+    model = StructuredModel(build_parameter_table(spec))
+    block = spec.exploratory[0]
+    reported = fit.exploratory[0]
+    rows = [model.table.observed.index(x) for x in block.item_names]
+    cols = [model.table.latent.index(f) for f in block.factor_names]
+
+    def rotated(theta):
+        mats = model.matrices(theta)
+        A = mats.L[np.ix_(rows, cols)] / np.sqrt(np.diag(mats.implied_covariance())[rows])[:, None]
+        solution = rotate(A, spec_of_rotation)
+        P, Phi = solution.pattern, solution.factor_correlations
+        # the same columns as reported: best matching order and sign
+        order = [int(np.argmax(np.abs(reported.standardized.T @ P)[k])) for k in range(P.shape[1])]
+        P, Phi = P[:, order], Phi[np.ix_(order, order)]
+        signs = np.sign(np.sum(P * reported.standardized, axis=0))
+        return np.concatenate([(P * signs).ravel(), (Phi * np.outer(signs, signs)).ravel()])
+
+    theta = fit.theta
+    h = 1e-4
+    J = np.column_stack([(rotated(theta + h * e) - rotated(theta - h * e)) / (2 * h) for e in np.eye(len(theta))])
+    se = np.sqrt(np.diag(J @ fit.parameter_covariance @ J.T))
+    p, m = reported.standardized.shape
+    return se[: p * m].reshape(p, m), se[p * m:].reshape(m, m)
+
+
+@pytest.mark.parametrize("which", ["target", "geomin"])
+def test_standard_errors_agree_with_a_finite_difference_delta_method(hs_data, target_fit, geomin_fit, which):
+    if which == "target":
+        fit, text = target_fit, TARGET
+        rotation = RotationSpec(RotationMethod.TARGET, target=fit.exploratory[0].target, tolerance=1e-11)
+    else:
+        fit, text = geomin_fit, GEOMIN
+        rotation = RotationSpec(RotationMethod.GEOMIN, tolerance=1e-11)
+    block = fit.exploratory[0]
+    loading_se, phi_se = _numeric_delta(fit, text, hs_data, rotation)
+    assert np.all(np.isfinite(block.standardized_se))
+    np.testing.assert_allclose(block.standardized_se, loading_se, rtol=2e-3, atol=2e-5)
+    np.testing.assert_allclose(block.correlations_se, phi_se, rtol=2e-3, atol=2e-5)
+
+
+def test_block_beside_an_ordinary_factor_matches_semopy(hs_data):
+    import semopy
+
+    text = "exploratory factors f1, f2 from x1..x6\nfactor speed: x7, x8, x9\n"
+    ours = cfa_tool.fit(text, hs_data)
+    assert ours.converged and ours.fit.df == 20  # 45 moments, 25 parameters (11 + 3 + 9 + 2)
+    # the block in the equivalent anchor identification (Joreskog 1969): x1 marks f1 and has no loading on f2,
+    # x4 the other way round, the factors correlate; m^2 = 4 constraints as the block's own
+    model = semopy.Model("f1 =~ 1*x1 + 0*x4 + x2 + x3 + x5 + x6\nf2 =~ 1*x4 + 0*x1 + x2 + x3 + x5 + x6\n"
+                         "speed =~ x7 + x8 + x9\nf1 ~~ f2\nf1 ~~ speed\nf2 ~~ speed\n")
+    model.fit(hs_data[list(ITEMS)], solver="L-BFGS-B")
+    stats = semopy.calc_stats(model)
+    assert int(stats["DoF"].iloc[0]) == 20
+    assert ours.fit.chi_square == pytest.approx(float(stats["chi2"].iloc[0]), rel=1e-5)
+    block = ours.exploratory[0]
+    assert block.other_factors == ("speed",)
+    assert np.all(np.isfinite(block.other_correlations_se)) and np.all(np.abs(block.other_correlations) < 1)
+    assert not any(set(m.variables) & {"f1", "f2"} for m in ours.modification_indices)
+
+
+@pytest.mark.parametrize("text, message, line, column", [
+    ("factor g: y1, y2, y3\nexploratory factors f1, f2 from x1..x4\n", "needs at least 5 items", 2, 33),
+    ("exploratory factors f1 from x1..x3\nexploratory factors f2 from x3..x6\n", "two exploratory blocks", 2, 29),
+    ("exploratory factors f1, f2 from x1..x9 rotated by obliquemax\n", "unknown rotation 'obliquemax'", 1, 51),
+    ("exploratory factors f1, f2 from x1..x9 rotated by geomni\n", "did you mean 'geomin'", 1, 51),
+    ("exploratory factors f1, f2 from x1..x9 rotated by target\n", "needs its targets", 1, 51),
+    ("exploratory factors f1, f2 from x1..x9\nnear zero f1: x1\n", "rotated by geomin", 2, 11),
+    ("exploratory factors f1, f2 from x1..x9\nfix variance(f1) = 2\n", "parameter of an exploratory block", 2, 5),
+])
+def test_model_errors_name_the_line_and_column(text, message, line, column):
+    with pytest.raises(ModelError) as caught:
+        parse_model(text)
+    error = caught.value
+    assert message in str(error)
+    assert (error.location.line, error.location.column) == (line, column)
+    assert "\n" not in error.message
+
+
+def test_blocks_are_one_group_only(hs_data):
+    with pytest.raises(ModelError, match="one group only"):
+        cfa_tool.fit(GEOMIN, hs_data, group="school")
+
+
+def test_reports_show_the_rotated_block_not_the_unrotated_one(geomin_fit):
+    from cfa_tool.reporting.html_report import html_report
+    from cfa_tool.reporting.paragraph import methods_paragraph
+    from cfa_tool.reporting.text_formats import markdown_report
+
+    block = geomin_fit.exploratory[0]
+    assert not any(set(r.variables) & set(block.factors) for r in geomin_fit.estimates)
+    text = geomin_fit.summary()
+    markdown = markdown_report(geomin_fit)
+    html = html_report(geomin_fit)
+    for report in (markdown, html, " ".join(text.split())):
+        assert "Exploratory block f1, f2, f3 (geomin rotation, oblique)" in report
+        assert "Correlations of the rotated factors" in report
+    assert 'class="r faint"' in html
+    # x9's visual loading (about .37 here) is shown with its SE, as in the block's values
+    i = block.items.index("x9")
+    j = int(np.argmax(np.abs(block.standardized[i])))
+    assert f"{block.standardized_se[i, j]:.3f}" in markdown
+    paragraph = methods_paragraph(geomin_fit)
+    assert "rotated by geomin (oblique)" in paragraph and "echelon" not in paragraph
+    assert "first k - 1 items fixed at 0" in paragraph
+
+
+def test_diagram_draws_the_rotated_salient_loadings(geomin_fit):
+    from cfa_tool.reporting.diagram import BLOCK_LOADING_DRAWN, path_diagram
+    from cfa_tool.reporting.html_report import html_report
+    from cfa_tool.reporting.numbers import unit
+
+    svg = path_diagram(geomin_fit)
+    block = geomin_fit.exploratory[0]
+    for name in block.factors:
+        assert f">{name}</text>" in svg
+    salient = block.standardized[np.abs(block.standardized) >= BLOCK_LOADING_DRAWN]
+    assert len(salient) == 10  # nine items on their own factor, and x9 on a second (the .37 cross-loading)
+    for value in salient:
+        assert f">{unit(value, 2)}</text>" in svg
+    assert "rotated loadings of .30 or more" in html_report(geomin_fit)
+
+
+def test_json_holds_the_rotated_block(geomin_fit):
+    import json
+
+    out = json.loads(json.dumps(geomin_fit.to_dict()))
+    block = out["exploratory_blocks"][0]
+    assert block["rotation"] == "geomin" and block["oblique"] is True
+    np.testing.assert_allclose(block["standardized"], geomin_fit.exploratory[0].standardized)
+    assert "delta method" in block["standard_errors"]
+
+
+@pytest.mark.parametrize("command", ["scores", "bootstrap"])
+def test_workflows_that_would_show_the_unrotated_block_refuse_it(tmp_path, command, capsys):
+    from cfa_tool.cli import main
+    from tests.conftest import DATASETS
+
+    model = tmp_path / "block.cfa"
+    model.write_text(GEOMIN)
+    extra = ["--output", tmp_path / "s.csv"] if command == "scores" else ["--replications", 20]
+    code = main([str(a) for a in [command, model, "--data", DATASETS / "holzinger_swineford_1939.csv", *extra]])
+    err = capsys.readouterr().err
+    assert code == 2 and "not available for a model with an exploratory block" in err and "block.cfa:1:1:" in err
+    assert not (tmp_path / "s.csv").exists()
