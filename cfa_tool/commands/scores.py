@@ -5,7 +5,8 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.commands.common import add_report_options, check_files, report_files, require_suffix, say, write_reports
+from cfa_tool.commands.common import add_report_options, check_files, docx_file, report_files, require_suffix, say, \
+    table_files, write_reports, write_tables
 
 
 def add_parser(sub) -> None:
@@ -53,6 +54,7 @@ def _methods(text: str | None):
 
 
 def run(args: argparse.Namespace) -> int:
+    from cfa_tool.reporting.reports import report_of
     from pathlib import Path
 
     from cfa_tool import cli
@@ -84,9 +86,13 @@ def run(args: argparse.Namespace) -> int:
                         max_iterations=args.max_iterations)
     files = [("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")]
     files += report_files(args, result, scores_html_report, scores_markdown)
+    report = report_of(result)  # the Word document and the tables (one report model)
+    files += docx_file(args, report)
+    tables = table_files(args, report, [args.model, args.data, args.from_fit])
     if not args._stdout_taken:
         render_scores(result, cli._console())
     write_reports(args, files)
+    write_tables(args, tables, [args.model, args.data, args.from_fit])
     if result.low_determinacy:
         say(args, f"Caution: the determinacy of {', '.join(result.low_determinacy)} is below .80; see the report")
     return 0

@@ -211,3 +211,13 @@ def scores_markdown(result) -> str:
         parts += ["## Notes", ""] + [f"- {markdown_text(w)}" for w in notes(result)] + [""]
     parts += ["## Cautions", "", markdown_text(SCORES_CAUTION), "", markdown_text(HIGH_STAKES_NOTE), ""]
     return "\n".join(parts)
+
+
+def scores_report(result):
+    """The scores' report as the one report model (cfa_tool.reporting.document.Report): what ``--docx``,
+    ``--tables`` and a saved result's report hold."""
+    from cfa_tool.reporting.document import Report, ResultKind
+
+    return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", T.problem_notice(result.fit),
+                  tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
+                  tuple(notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE))

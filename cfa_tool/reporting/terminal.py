@@ -109,3 +109,29 @@ def render_text(result, width: int = 120) -> str:
     console = SafeConsole(file=buffer, width=width, no_color=True, highlight=False, emoji=False, markup=False)
     render(result, console)
     return buffer.getvalue()
+
+
+def render_report(report, console: Console) -> None:
+    """Any command's report (cfa_tool.reporting.document.Report): the problems first, then what was done, the
+    tables, the notes and the cautions."""
+    if report.notice is not None:
+        console.print(problem_panel(report.notice))
+        console.print()
+    console.print(Text(report.title, style="bold underline"))
+    for line in report.lines:
+        console.print(line)
+    if report.paragraph:
+        console.print()
+        console.print(report.paragraph)
+    for table in report.tables:
+        console.print(rich_table(table))
+    for line in report.notes:
+        console.print(line)
+    for line in report.cautions:
+        console.print(Text(line, style="italic"))
+
+
+def report_text(report, width: int = 120) -> str:
+    buffer = io.StringIO()
+    render_report(report, SafeConsole(file=buffer, width=width, no_color=True, highlight=False, emoji=False, markup=False))
+    return buffer.getvalue()
