@@ -48,6 +48,9 @@ class Report:
     cautions: tuple[str, ...] = ()  # last, in every view
     paragraph: str | None = None  # the methods-and-results paragraph for a paper
     figures: tuple[Figure, ...] = ()
+    # the problems as a table for data files, when the solution's problems have more to say than the notice's
+    # lines (parameters, values, advice)
+    problem_table: ReportTable | None = None
 
     def to_dict(self) -> dict:
         notice = None if self.notice is None else {"heading": self.notice.heading, "lines": list(self.notice.lines),
@@ -55,7 +58,8 @@ class Report:
         return {"kind": self.kind.value, "title": self.title, "notice": notice, "lines": list(self.lines),
                 "tables": [t.to_dict() for t in self.tables], "notes": list(self.notes), "cautions": list(self.cautions),
                 "paragraph": self.paragraph, "figures": [{"title": f.title, "svg": f.svg, "note": f.note}
-                                                         for f in self.figures]}
+                                                         for f in self.figures],
+                "problem_table": None if self.problem_table is None else self.problem_table.to_dict()}
 
     @classmethod
     def from_dict(cls, d: dict) -> "Report":
@@ -65,4 +69,5 @@ class Report:
         return cls(ResultKind(d["kind"]), str(d["title"]), notice, tuple(map(str, d["lines"])),
                    tuple(ReportTable.from_dict(t) for t in d["tables"]), tuple(map(str, d.get("notes", ()))),
                    tuple(map(str, d.get("cautions", ()))), d.get("paragraph"),
-                   tuple(Figure(str(f["title"]), str(f["svg"]), str(f.get("note", ""))) for f in d.get("figures", ())))
+                   tuple(Figure(str(f["title"]), str(f["svg"]), str(f.get("note", ""))) for f in d.get("figures", ())),
+                   None if d.get("problem_table") is None else ReportTable.from_dict(d["problem_table"]))

@@ -25,4 +25,5 @@ def fit_report(result) -> Report:
                            LEGEND + (" Elements in red show a problem of the solution." if result.problems else ""))
                     for k, g in enumerate(result.groups))
     return Report(ResultKind.FIT, result.model_name, T.problem_notice(result), lines, tuple(all_tables(result)),
-                  tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), methods_paragraph(result), figures)
+                  tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), methods_paragraph(result), figures,
+                  T.problem_table(result))

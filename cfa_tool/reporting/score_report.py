@@ -220,4 +220,5 @@ def scores_report(result):
 
     return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", T.problem_notice(result.fit),
                   tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
-                  tuple(notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE))
+                  tuple(notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE),
+                  problem_table=T.problem_table(result.fit))

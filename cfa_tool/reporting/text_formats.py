@@ -138,7 +138,8 @@ def report_markdown(report) -> str:
 
 def report_table_files(report) -> dict[str, str]:
     """Every table of a report as CSV and LaTeX, file name -> text; the problems first."""
-    tables = ([notice_table(report.notice)] if report.notice is not None else []) + list(report.tables)
+    problems = report.problem_table or (notice_table(report.notice) if report.notice is not None else None)
+    tables = ([problems] if problems is not None else []) + list(report.tables)
     files = {}
     for table in tables:
         files[f"{table.key}.csv"] = csv_table(table)

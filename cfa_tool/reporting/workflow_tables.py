@@ -9,7 +9,7 @@ from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.numbers import missing, num, p_value, short, signed, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
 
-SOME_NOT_ADMISSIBLE = "Not every solution is admissible: do not interpret those estimates or their fit"
+SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
 CHANGE_GUIDES = ("Changes in CFI and RMSEA are read against common-practice guides (a fall in CFI of more than .010, "
                  "Cheung & Rensvold 2002; a rise in RMSEA of .015 or more, Chen 2007), which are conventions, not tests.")
 
