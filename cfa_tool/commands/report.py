@@ -50,6 +50,15 @@ def run(args: argparse.Namespace) -> int:
     args.dpi = check.whole_number("--dpi", args.dpi, 72, 1200)
     check_files(args, [], [args.result])  # never the result file itself, never a file the run did not create
     report = saved_report(read_result(args.result), shown(args.result))
+    if args.docx and report.figures:
+        from cfa_tool.reporting.picture import png_converter
+
+        if png_converter() is None:  # said before the work, not after
+            from cfa_tool.reporting.docx_report import NO_PICTURE
+
+            import sys
+
+            print(f"cfa-tool: note: {NO_PICTURE}", file=sys.stderr)
     files = document_files(args, report, args.dpi)
     tables = table_files(args, report, [args.result])
     if not args._stdout_taken:

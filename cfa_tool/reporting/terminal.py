@@ -40,6 +40,8 @@ def _table(title: str, columns: list[tuple[str, str]]) -> Table:
 
 def rich_table(report: ReportTable) -> Table:
     table = _table(report.title, [(c, "left" if a == "l" else "right") for c, a in zip(report.columns, report.align)])
+    for column in table.columns:
+        column.overflow = "fold"  # a narrow terminal wraps a long word; it never cuts one short
     faint = set(report.faint)
     for k, row in enumerate(report.rows):
         cells = [Text(v, style="dim") if (k, j) in faint else v for j, v in enumerate(row)]

@@ -294,6 +294,8 @@ def replication_report(replications) -> Report:
 
 # ---------------------------------------------------------------- bootstrap
 
+SCALE_WORDS = {"standardized": "std.", "unstandardized": "unstd."}  # short words for a narrow column
+
 def bootstrap_report(boot) -> Report:
     result = boot.fit
     lines = [f"{boot.replications} resamples of {result.n_obs} rows (seed {boot.seed}); {boot.converged} converged, "
@@ -301,15 +303,20 @@ def bootstrap_report(boot) -> Report:
     if boot.bollen_stine_p is not None:
         lines.append(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
                      f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_value(result.fit.p_value)}).")
-    rows = [[f"{i.kind.replace('_', ' ')} {', '.join(i.variables)}", i.scale, num(i.estimate), num(i.bootstrap_se),
-             f"[{num(i.percentile[0])}, {num(i.percentile[1])}]", f"[{num(i.bca[0])}, {num(i.bca[1])}]"]
-            for i in boot.intervals]
+    def shown(value: float, scale: str) -> str:  # a standardized value within [-1, 1] without its leading zero
+        return unit(value) if scale == "standardized" and not missing(value) and abs(value) <= 1 else num(value)
+
+    rows = [[f"{i.kind.replace('_', ' ')} {', '.join(i.variables)}", SCALE_WORDS.get(i.scale, i.scale),
+             shown(i.estimate, i.scale),
+             num(i.bootstrap_se), f"[{shown(i.percentile[0], i.scale)}, {shown(i.percentile[1], i.scale)}]",
+             f"[{shown(i.bca[0], i.scale)}, {shown(i.bca[1], i.scale)}]"] for i in boot.intervals]
     values = [[i.kind, ", ".join(i.variables), i.scale, i.estimate, i.bootstrap_se, *i.percentile, *i.bca]
               for i in boot.intervals]
     table = _table("bootstrap_intervals", "Bootstrap intervals (95%)",
                    [("Parameter", "l"), ("Scale", "l"), ("Estimate", "r"), ("Bootstrap SE", "r"), ("Percentile", "r"),
                     ("BCa", "r")], rows,
-                   "Percentile and bias-corrected and accelerated (BCa; Efron 1987) intervals from the converged resamples.",
+                   "Scale: std., standardized (every variable with variance 1); unstd., in the model's units. Percentile "
+                   "and bias-corrected and accelerated (BCa; Efron 1987) intervals from the converged resamples.",
                    values=(["Kind", "Variables", "Scale", "Estimate", "Bootstrap SE", "Percentile lower",
                             "Percentile upper", "BCa lower", "BCa upper"], values))
     return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines), (table,),
