@@ -48,13 +48,14 @@ def write_reports(args: argparse.Namespace, files: list[tuple[str, object, str]]
             say(args, message)
 
 
-def report_files(args: argparse.Namespace, result, html, markdown) -> list[tuple[str, object, str]]:
+def report_files(args: argparse.Namespace, result, html, markdown, report=None) -> list[tuple[str, object, str]]:
     """(option, content, message) of the JSON, HTML and Markdown reports asked for; ``html`` and ``markdown``
-    make the command's report in those formats."""
+    make the command's report in those formats; ``report``: the result's report when made already (the JSON
+    holds it)."""
     from cfa_tool.reporting.json_report import to_json
 
     files = []
-    for option, wanted, make, what in (("--json", args.json, to_json, "JSON result"),
+    for option, wanted, make, what in (("--json", args.json, lambda r: to_json(r, report), "JSON result"),
                                        ("--html", args.html, html, "HTML report"),
                                        ("--markdown", args.markdown, markdown, "Markdown report")):
         if wanted:

@@ -55,8 +55,8 @@ def run(args: argparse.Namespace) -> int:
                      sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
                      replications=args.replications, seed=args.seed)
     files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
-    files += report_files(args, result, explore_html_report, explore_markdown)
-    report = report_of(result)  # the Word document and the tables (one report model)
+    report = report_of(result)  # the JSON's report, the Word document and the tables (one report model)
+    files += report_files(args, result, explore_html_report, explore_markdown, report)
     files += docx_file(args, report)
     tables = table_files(args, report, [args.data])
     if not args._stdout_taken:

@@ -85,8 +85,8 @@ def run(args: argparse.Namespace) -> int:
                         ordinal_estimator=args.ordinal_estimator, missing=args.missing,
                         max_iterations=args.max_iterations)
     files = [("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")]
-    files += report_files(args, result, scores_html_report, scores_markdown)
-    report = report_of(result)  # the Word document and the tables (one report model)
+    report = report_of(result)  # the JSON's report, the Word document and the tables (one report model)
+    files += report_files(args, result, scores_html_report, scores_markdown, report)
     files += docx_file(args, report)
     tables = table_files(args, report, [args.model, args.data, args.from_fit])
     if not args._stdout_taken:
