@@ -126,24 +126,24 @@ def test_every_format_holds_the_same_tables_and_report_writes_them_again(command
     report = Report.from_dict(saved["report"])
     assert report.tables, "a report without tables"
     titles = [t.title for t in report.tables]
-    # the terminal: 80 columns, the title and every table's title (the fit, scores and exploration keep
+    # the terminal: 80 columns, the title and every table's title (the fit and the exploration keep
     # their own layouts, which show the problems first too; the exploration prints its draft model's lines as the
     # file holds them)
     if command != "explore":
         assert max(len(line) for line in _report_lines(text)) <= 80
-    if command not in ("fit", "scores", "explore"):
+    if command not in ("fit", "explore"):
         assert report.title.split(" (")[0] in " ".join(text.split())
         for title in titles:
             assert title in " ".join(text.split())  # a long title wraps
     # HTML: every report table with its caption and cells
     shown = {caption: rows for caption, rows in _html_tables(written[1])}
     for table in report.tables:
-        if command in ("fit", "explore", "scores") and table.title not in shown:
-            continue  # the fit's, scores' and exploration's own pages show their main tables (the Word file has all)
+        if command in ("fit", "explore") and table.title not in shown:
+            continue  # the fit's and the exploration's own pages show their main tables (the Word file has all)
         assert shown[table.title] == [list(r) for r in table.rows], table.title
     # Markdown: every title
     markdown = written[2].read_text()
-    if command not in ("fit", "scores", "explore"):
+    if command not in ("fit", "explore"):
         for title in titles:
             assert f"**{markdown_text(title)}**" in markdown
     # Word: numbered tables with the same titles and cells, problems first
@@ -176,7 +176,7 @@ def test_every_format_holds_the_same_tables_and_report_writes_them_again(command
         assert replayed[table.title] == [list(r) for r in table.rows]
     for name in names:
         assert (again / "tables" / name).read_text() == (written[4] / name).read_text(), name
-    if command not in ("fit", "scores", "explore"):
+    if command not in ("fit", "explore"):
         assert (again / "r.md").read_text() == markdown
         assert (again / "r.html").read_text() == written[1].read_text()
 

@@ -5,8 +5,7 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.commands.common import add_report_options, check_files, docx_file, report_files, require_suffix, say, \
-    table_files, write_reports, write_tables
+from cfa_tool.commands.common import add_report_options, check_files, emit_report, require_suffix, say
 
 
 def add_parser(sub) -> None:
@@ -54,12 +53,10 @@ def _methods(text: str | None):
 
 
 def run(args: argparse.Namespace) -> int:
-    from cfa_tool.reporting.reports import report_of
     from pathlib import Path
 
     from cfa_tool import cli
     from cfa_tool.errors import OptionError
-    from cfa_tool.reporting.score_report import render_scores, scores_html_report, scores_markdown
     from cfa_tool.workflows.factor_scores import score_with_saved_fit, scores
 
     require_suffix("--output", args.output, ".csv", "the scores")
@@ -84,15 +81,8 @@ def run(args: argparse.Namespace) -> int:
                         missing_codes=args.missing_codes, keep=args.keep, ordinal=cli._ordinal_arg(args.ordinal),
                         ordinal_estimator=args.ordinal_estimator, missing=args.missing,
                         max_iterations=args.max_iterations)
-    files = [("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")]
-    report = report_of(result)  # the JSON's report, the Word document and the tables (one report model)
-    files += report_files(args, result, scores_html_report, scores_markdown, report)
-    files += docx_file(args, report)
-    tables = table_files(args, report, [args.model, args.data, args.from_fit])
-    if not args._stdout_taken:
-        render_scores(result, cli._console())
-    write_reports(args, files)
-    write_tables(args, tables, [args.model, args.data, args.from_fit])
+    rows = ("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")
+    emit_report(args, result, [args.model, args.data, args.from_fit], first=[rows])
     if result.low_determinacy:
         say(args, f"Caution: the determinacy of {', '.join(result.low_determinacy)} is below .80; see the report")
     return 0

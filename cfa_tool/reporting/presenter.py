@@ -1,17 +1,16 @@
 """The reporting layer's presenter: how result objects made below this layer show themselves
-(installed by the package's top module, see :mod:`cfa_tool.views`).  Every result but a fit, scores and an
+(installed by the package's top module, see :mod:`cfa_tool.views`).  Every result but a fit and an
 exploration shows the one report model (cfa_tool.reporting.document)."""
 
 from __future__ import annotations
 
 
 def _has_own_report(result: object) -> bool:
-    """A fit, scores and an exploration have reports of their own layout; every other result the report model's."""
+    """A fit and an exploration have reports of their own layout; every other result the report model's."""
     from cfa_tool.pipeline.results import FitResult
     from cfa_tool.workflows.explore import ExploreResult
-    from cfa_tool.workflows.factor_scores import ScoreResult
 
-    return isinstance(result, (FitResult, ScoreResult, ExploreResult))
+    return isinstance(result, (FitResult, ExploreResult))
 
 
 class ReportPresenter:
@@ -22,12 +21,7 @@ class ReportPresenter:
 
             return report_text(report_of(result), width)
         from cfa_tool.workflows.explore import ExploreResult
-        from cfa_tool.workflows.factor_scores import ScoreResult
 
-        if isinstance(result, ScoreResult):
-            from cfa_tool.reporting.score_report import render_scores_text
-
-            return render_scores_text(result, width)
         if isinstance(result, ExploreResult):
             from cfa_tool.reporting.explore_report import render_explore_text
 
@@ -43,12 +37,7 @@ class ReportPresenter:
 
             return report_html_fragment(report_of(result), heading=True)
         from cfa_tool.workflows.explore import ExploreResult
-        from cfa_tool.workflows.factor_scores import ScoreResult
 
-        if isinstance(result, ScoreResult):
-            from cfa_tool.reporting.score_report import scores_html_fragment
-
-            return scores_html_fragment(result)
         if isinstance(result, ExploreResult):
             from cfa_tool.reporting.explore_report import explore_html_fragment
 
