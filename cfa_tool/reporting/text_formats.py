@@ -125,7 +125,9 @@ def report_markdown(report) -> str:
     if report.notice is not None:
         parts += [f"## {markdown_text(report.notice.heading)}", ""] + [f"- {markdown_text(line)}"
                                                                         for line in report.notice.lines] + [""]
-    parts += [f"# {markdown_text(report.title)}", ""] + [markdown_text(line) + "  " for line in report.lines] + [""]
+    parts += [f"# {markdown_text(report.title)}", ""]
+    if report.lines:
+        parts += [markdown_text(line) + "  " for line in report.lines] + [""]
     if report.paragraph:
         parts += ["## Summary for a paper", "", markdown_text(report.paragraph), ""]
     parts += [markdown_table(t) for t in report.tables]
