@@ -13,6 +13,7 @@ import sys
 import warnings
 from pathlib import Path
 
+from cfa_tool.commands.common import add_report_options
 from cfa_tool.errors import CfaError, ModelError, OptionError, printable
 from cfa_tool.method import FitTest, Information, MissingData, Weighting
 
@@ -95,7 +96,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_group_options(compare, required=False)
     _add_test_option(compare)
     _add_ordinal_options(compare)
-    _add_json_option(compare)
+    add_report_options(compare)
 
     inv = sub.add_parser("invariance", help="test configural, metric, scalar and strict invariance across groups")
     inv.add_argument("model", metavar="MODEL", help="model file")
@@ -109,7 +110,7 @@ def build_parser() -> argparse.ArgumentParser:
                      help="how each step is judged: the chi-square difference test (default), the change in CFI, RMSEA "
                           "and SRMR against common-practice guides, or both")
     _add_ordinal_options(inv)
-    _add_json_option(inv)
+    add_report_options(inv)
 
     rep = sub.add_parser("replicate", help="check that a model replicates in new data (or in random halves of one data set)")
     rep.add_argument("model", metavar="MODEL", help="model file")
@@ -117,7 +118,7 @@ def build_parser() -> argparse.ArgumentParser:
     rep.add_argument("--validation", metavar="FILE", help="new data the estimates are checked in")
     rep.add_argument("--data", metavar="FILE", help="one data file to split at random into two halves")
     rep.add_argument("--seed", type=int, default=1, help="seed of the random split (default 1)")
-    _add_json_option(rep)
+    add_report_options(rep)
 
     _add_resampling_command(sub, "bootstrap", "bootstrap intervals and the Bollen-Stine p-value of a fit", 1000,
                             "number of resamples")
@@ -129,7 +130,7 @@ def build_parser() -> argparse.ArgumentParser:
     power.add_argument("--test", choices=("close", "not-close", "exact"), default="close", help="which test (default close)")
     power.add_argument("--alpha", type=float, default=0.05, help="significance level (default .05)")
     power.add_argument("--target", type=float, default=0.80, help="power the sample size should reach (default .80)")
-    _add_json_option(power)
+    add_report_options(power)
 
     mc = sub.add_parser("power-simulation", help="Monte Carlo power, bias and coverage for a model with population values")
     mc.add_argument("model", metavar="MODEL", help="model file; 'start' and 'fix' statements give population values")
@@ -149,7 +150,7 @@ def build_parser() -> argparse.ArgumentParser:
     sim.add_argument("--missing", type=float, default=0.0, help="share of answers removed completely at random")
     sim.add_argument("--population-from", metavar="RESULT", help="take the population values from an earlier fit of "
                      "this model (the file written by 'fit --json')")
-    _add_json_option(sim)
+    add_report_options(sim)
 
     _add_resampling_command(sub, "cutoffs", "fit-index cutoffs simulated for this model and sample size", 200,
                             "samples per population")
@@ -218,7 +219,7 @@ def _add_run_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--seed", type=int, default=1, help="random seed (default 1); the same seed gives the same result")
     p.add_argument("--workers", type=int, help="local processes (default: one per core)")
     p.add_argument("--cluster", metavar="ADDRESS", help="Dask scheduler to run on, e.g. tcp://host:8786")
-    _add_json_option(p)
+    add_report_options(p)
 
 
 def _add_json_option(p: argparse.ArgumentParser) -> None:
@@ -358,22 +359,20 @@ def _run(args: argparse.Namespace) -> int:
     if args.command == "demo":
         return _fit_and_report(args, args.model, args.data)
     if args.command == "compare":
-        from cfa_tool.reporting.workflow_text import render_comparison
         from cfa_tool.workflows.compare import compare
 
         result = compare(args.models, args.data, group=args.group, reference_group=args.reference_group, test=fit_test(args),
                          sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
                          ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
-        return _emit(args, result, render_comparison)
+        return _emit(args, result)
     if args.command == "invariance":
-        from cfa_tool.reporting.workflow_text import render_invariance
         from cfa_tool.workflows.invariance import invariance
 
         result = invariance(args.model, args.data, args.group, reference_group=args.reference_group,
                             partial=args.partial, alpha=args.alpha, decide_by=args.decide_by, sheet=args.sheet,
                             missing_codes=args.missing_codes,
                             keep=args.keep, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
-        return _emit(args, result, render_invariance)
+        return _emit(args, result)
     if args.command == "replicate":
         return _replicate(args)
     if args.command in ("bootstrap", "power", "power-simulation", "simulate", "cutoffs"):
@@ -382,8 +381,7 @@ def _run(args: argparse.Namespace) -> int:
 
 
 def _replicate(args: argparse.Namespace) -> int:
-    from cfa_tool.reporting.workflow_text import render_replication
-    from cfa_tool.workflows.replication import replicate, split_half
+    from cfa_tool.workflows.replication import Replications, replicate, split_half
 
     if args.data and (args.calibration or args.validation):
         raise OptionError("give either --data (split-half) or --calibration and --validation, not both")
@@ -394,17 +392,10 @@ def _replicate(args: argparse.Namespace) -> int:
     else:
         raise OptionError("give --calibration and --validation files, or --data FILE to split one data set in two halves")
 
-    return _emit(args, _Replications(pair), lambda _, console: render_replication(pair, console))
-
-
-class _Replications(tuple):
-    def to_dict(self) -> dict:
-        return {"replications": [r.to_dict() for r in self]}
+    return _emit(args, Replications(tuple(pair)))
 
 
 def _simulation_command(args: argparse.Namespace) -> int:
-    from cfa_tool.reporting import workflow_text as W
-
     if args.command == "power":
         from cfa_tool.workflows.power import model_degrees_of_freedom, plan
 
@@ -418,61 +409,39 @@ def _simulation_command(args: argparse.Namespace) -> int:
             df, variables = model_degrees_of_freedom(read_model_file(args.model))
         if df is None:
             raise OptionError("give a model file or --df")
-        return _emit(args, plan(df, args.test, args.n, args.alpha, args.target, variables=variables), W.render_power)
+        return _emit(args, plan(df, args.test, args.n, args.alpha, args.target, variables=variables))
     from cfa_tool.language.parser import read_model_file
 
     if args.command == "simulate":
+        from cfa_tool.commands.common import emit_report
+        from cfa_tool.reporting.text_formats import csv_cell
         from cfa_tool.workflows.simulation import simulate
-
-        from cfa_tool.output_files import write_file
 
         simulated = simulate(read_model_file(args.model), args.n, args.seed, args.categories, args.missing,
                              args.population_from)
         frame = simulated.frame
-        if not args._stdout_taken:
-            W.render_population(simulated, _console())
-        if args.json:
-            from cfa_tool.reporting.json_report import to_json
-
-            write_file(args._targets["--json"], to_json(simulated))
-        from cfa_tool.reporting.text_formats import csv_cell
-
         guarded = frame.set_axis([csv_cell(c) for c in frame.columns], axis=1)  # a name spreadsheets would run
-        write_file(args._targets["--output"], guarded.to_csv(index=False, na_rep=""))
-        _say(args, f"{len(frame)} rows of {frame.shape[1]} variables written to {args.output} (seed {args.seed})")
-        return 0
+        rows = ("--output", guarded.to_csv(index=False, na_rep=""),
+                f"{len(frame)} rows of {frame.shape[1]} variables written to {args.output} (seed {args.seed})")
+        return emit_report(args, simulated, _inputs(args), first=[rows])
     with _progress(args.command) as advance:
         if args.command == "power-simulation":
             from cfa_tool.workflows.montecarlo import monte_carlo_power
 
             result = monte_carlo_power(read_model_file(args.model), args.n, args.replications, args.seed, args.alpha,
                                        args.workers, args.cluster, advance, args.population_from)
-            render = W.render_montecarlo
         elif args.command == "bootstrap":
             from cfa_tool.workflows.bootstrap import bootstrap
 
-            result = _Pair(bootstrap(args.model, args.data, args.replications, args.seed, workers=args.workers,
-                                     cluster=args.cluster, progress=advance, sheet=args.sheet,
-                                     missing_codes=args.missing_codes, keep=args.keep))
-            render = W.render_bootstrap
+            result = bootstrap(args.model, args.data, args.replications, args.seed, workers=args.workers,
+                               cluster=args.cluster, progress=advance, sheet=args.sheet, missing_codes=args.missing_codes,
+                               keep=args.keep)
         else:
             from cfa_tool.workflows.cutoffs import cutoffs
 
-            result = _Pair(cutoffs(args.model, args.data, args.replications, args.seed, args.workers, args.cluster,
-                                   advance, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep))
-            render = W.render_cutoffs
-    return _emit(args, result, render)
-
-
-class _Pair(tuple):
-    """(fit, workflow result) pairs: JSON holds the workflow result beside the fit."""
-
-    def __new__(cls, pair):
-        return super().__new__(cls, pair)
-
-    def to_dict(self) -> dict:
-        fit, other = self
-        return {"fit": fit.to_dict(), "result": other.to_dict()}
+            result = cutoffs(args.model, args.data, args.replications, args.seed, args.workers, args.cluster,
+                             advance, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep)
+    return _emit(args, result)
 
 
 def _progress(label: str):
@@ -545,7 +514,7 @@ def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
         from cfa_tool import options as check
 
         args.dpi = check.whole_number("--dpi", args.dpi, 72, 1200)
-    if getattr(args, "docx", None) and png_converter() is None:  # said before the work, not after
+    if getattr(args, "docx", None) and args.command in ("fit", "demo") and png_converter() is None:  # said before the work
         from cfa_tool.reporting.docx_report import NO_PICTURE
 
         print(f"cfa-tool: note: {NO_PICTURE}", file=sys.stderr)
@@ -603,8 +572,13 @@ def _table_files(args: argparse.Namespace, result) -> dict[str, str]:
     return files
 
 
-def _emit(args: argparse.Namespace, result, render) -> int:
-    """Make every output, check that each can be written, then show the report and write them."""
+def _emit(args: argparse.Namespace, result, render=None) -> int:
+    """Make every output, check that each can be written, then show the report and write them (every result but
+    a fit, which has its own ``render``: the one report model, see commands.common.emit_report)."""
+    if render is None:
+        from cfa_tool.commands.common import emit_report
+
+        return emit_report(args, result, _inputs(args))
     from cfa_tool.output_files import check_table_folder, write_file, write_table_folder
 
     files = _report_files(args, result)

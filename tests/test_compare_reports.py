@@ -3,13 +3,11 @@ of a number when a scaled difference cannot be computed."""
 
 from __future__ import annotations
 
-import io
 from types import SimpleNamespace
 
 import pytest
-from rich.console import Console
-
-from cfa_tool.reporting.workflow_text import render_comparison
+from cfa_tool.reporting.terminal import report_text
+from cfa_tool.reporting.workflow_tables import comparison_report
 from cfa_tool.workflows.compare import compare
 from cfa_tool.workflows.nesting import scaled_difference_tests
 
@@ -17,9 +15,7 @@ THREE = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7
 
 
 def _text(comparison) -> str:
-    buffer = io.StringIO()
-    render_comparison(comparison, Console(file=buffer, width=80, no_color=True))
-    return buffer.getvalue()
+    return report_text(comparison_report(comparison), width=80)
 
 
 def test_robust_statistics_appear_in_the_comparison_table(hs_data):

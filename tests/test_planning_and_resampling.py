@@ -124,8 +124,9 @@ def test_monte_carlo_power_agrees_with_the_analytic_value():
 def test_bootstrap_is_reproducible_and_covers_the_estimate(hs_data):
     from cfa_tool.workflows.bootstrap import bootstrap
 
-    result, first = bootstrap(THREE_FACTORS, hs_data, replications=40, seed=11, workers=1)
-    _, again = bootstrap(THREE_FACTORS, hs_data, replications=40, seed=11, workers=2)
+    first = bootstrap(THREE_FACTORS, hs_data, replications=40, seed=11, workers=1)
+    result = first.fit
+    again = bootstrap(THREE_FACTORS, hs_data, replications=40, seed=11, workers=2)
     assert first.to_dict() == again.to_dict()  # same seed, same answer, however many workers
     assert first.converged == 40
     for interval in first.intervals:
@@ -185,7 +186,7 @@ def test_bollen_stine_p_is_roughly_uniform_under_a_true_model():
     ps = []
     for rep in range(12):
         data = simulate(spec, 200, seed=100 + rep).frame
-        _, boot = bootstrap(spec, data, replications=40, seed=rep, bca=False, workers=1)
+        boot = bootstrap(spec, data, replications=40, seed=rep, bca=False, workers=1)
         ps.append(boot.bollen_stine_p)
     # a uniform p has mean .5 and SD .29; with 12 draws the mean's SE is .08
     assert 0.25 < np.mean(ps) < 0.75
@@ -195,7 +196,8 @@ def test_bollen_stine_p_is_roughly_uniform_under_a_true_model():
 def test_model_specific_cutoffs(hs_data):
     from cfa_tool.workflows.cutoffs import cutoffs
 
-    result, cut = cutoffs(THREE_FACTORS, hs_data, replications=60, seed=3, workers=1)
+    cut = cutoffs(THREE_FACTORS, hs_data, replications=60, seed=3, workers=1)
+    result = cut.fit
     assert "cross-loading" in cut.misspecification
     rmsea95 = [c for c in cut.cutoffs if c.index == "rmsea" and c.level == 0.95][0]
     if rmsea95.cutoff is not None:
@@ -206,7 +208,7 @@ def test_model_specific_cutoffs(hs_data):
             assert c.separating_n is None or c.separating_n in (602, 1204, 2408, 4816)
             assert c.separating_size is None or c.separating_size > cut.misspecification_size
             assert c.separating_n is not None or c.separating_size is not None
-    _, again = cutoffs(THREE_FACTORS, hs_data, replications=60, seed=3, workers=2)
+    again = cutoffs(THREE_FACTORS, hs_data, replications=60, seed=3, workers=2)
     assert cut.to_dict() == again.to_dict()
 
 

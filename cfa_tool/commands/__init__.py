@@ -11,7 +11,8 @@ import argparse
 from importlib import import_module
 
 #: command name -> module (imported when the command runs or its parser is built)
-MODULES = {"scores": "cfa_tool.commands.scores", "explore": "cfa_tool.commands.explore"}
+MODULES = {"scores": "cfa_tool.commands.scores", "explore": "cfa_tool.commands.explore",
+           "report": "cfa_tool.commands.report"}
 
 
 def add_parsers(sub) -> None:

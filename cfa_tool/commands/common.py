@@ -9,10 +9,13 @@ from cfa_tool.errors import OptionError, printable
 
 
 def check_files(args: argparse.Namespace, outputs: list[tuple[str, str | None]], inputs: list[str | None]) -> dict:
-    """Every output checked before any work (cfa_tool.output_files); the targets are kept on ``args``."""
+    """Every output checked before any work (cfa_tool.output_files), the report options' files and table folder
+    among them; the targets are kept on ``args``."""
     from cfa_tool.output_files import check_outputs
 
-    targets = check_outputs(outputs, [i for i in inputs if i])
+    asked = {option for option, _ in outputs}
+    outputs = list(outputs) + [(o, getattr(args, a, None)) for o, a in REPORT_FILES if o not in asked]
+    targets = check_outputs(outputs, [i for i in inputs if i], [("--tables", getattr(args, "tables", None))])
     args._targets = targets
     args._stdout_taken = any(t.is_stdout for t in targets.values())
     return targets
@@ -45,13 +48,14 @@ def write_reports(args: argparse.Namespace, files: list[tuple[str, object, str]]
             say(args, message)
 
 
-def report_files(args: argparse.Namespace, result, html, markdown) -> list[tuple[str, object, str]]:
+def report_files(args: argparse.Namespace, result, html, markdown, report=None) -> list[tuple[str, object, str]]:
     """(option, content, message) of the JSON, HTML and Markdown reports asked for; ``html`` and ``markdown``
-    make the command's report in those formats."""
+    make the command's report in those formats; ``report``: the result's report when made already (the JSON
+    holds it)."""
     from cfa_tool.reporting.json_report import to_json
 
     files = []
-    for option, wanted, make, what in (("--json", args.json, to_json, "JSON result"),
+    for option, wanted, make, what in (("--json", args.json, lambda r: to_json(r, report), "JSON result"),
                                        ("--html", args.html, html, "HTML report"),
                                        ("--markdown", args.markdown, markdown, "Markdown report")):
         if wanted:
@@ -59,7 +63,91 @@ def report_files(args: argparse.Namespace, result, html, markdown) -> list[tuple
     return files
 
 
-def add_report_options(p: argparse.ArgumentParser) -> None:
-    p.add_argument("--json", metavar="PATH", help="also write the result as JSON to PATH ('-' for standard output only)")
+#: the report options' files: (option, attribute of the parsed arguments)
+REPORT_FILES = (("--json", "json"), ("--html", "html"), ("--markdown", "markdown"), ("--docx", "docx"))
+
+
+def add_report_options(p: argparse.ArgumentParser, json: bool = True) -> None:
+    """The options that write a command's report: JSON (which ``cfa-tool report`` turns into any format later),
+    HTML, Markdown, Word, and every table as CSV and LaTeX."""
+    if json:
+        p.add_argument("--json", metavar="PATH", help="also write the result as JSON to PATH ('-' for standard output "
+                                                      "only); 'cfa-tool report' writes any format from it later")
     p.add_argument("--html", metavar="PATH", help="write a self-contained HTML report")
     p.add_argument("--markdown", metavar="PATH", help="write the report as Markdown")
+    p.add_argument("--docx", metavar="PATH", help="write the report as a Word document for a manuscript (numbered "
+                                                  "tables with notes)")
+    p.add_argument("--tables", metavar="FOLDER", help="write every table as CSV and as LaTeX (booktabs) into FOLDER")
+
+
+def document_files(args: argparse.Namespace, report, dpi: int | None = None) -> list[tuple[str, object, str]]:
+    """(option, content, message) of the HTML, Markdown and Word files asked for, drawn from one report
+    (cfa_tool.reporting.document.Report)."""
+    files: list[tuple[str, object, str]] = []
+    if getattr(args, "html", None):
+        from cfa_tool.reporting.html_report import report_html
+
+        files.append(("--html", report_html(report), f"HTML report written to {args.html}"))
+    if getattr(args, "markdown", None):
+        from cfa_tool.reporting.text_formats import report_markdown
+
+        files.append(("--markdown", report_markdown(report), f"Markdown report written to {args.markdown}"))
+    files += docx_file(args, report, dpi)
+    return files
+
+
+def docx_file(args: argparse.Namespace, report, dpi: int | None = None) -> list[tuple[str, object, str]]:
+    if not getattr(args, "docx", None):
+        return []
+    from cfa_tool.reporting.docx_report import report_docx
+    from cfa_tool.reporting.picture import DEFAULT_DPI
+
+    return [("--docx", report_docx(report, dpi or DEFAULT_DPI), f"Word report written to {args.docx}")]
+
+
+def table_files(args: argparse.Namespace, report, inputs: list[str | None]) -> dict[str, str]:
+    """The --tables files of a report (name -> text), checked against the folder before anything is written."""
+    if not getattr(args, "tables", None):
+        return {}
+    from cfa_tool.output_files import check_table_folder
+    from cfa_tool.reporting.text_formats import report_table_files
+
+    files = report_table_files(report)
+    check_table_folder("--tables", args.tables, files, [i for i in inputs if i])
+    return files
+
+
+def write_tables(args: argparse.Namespace, files: dict[str, str], inputs: list[str | None]) -> None:
+    if files:
+        from cfa_tool.output_files import write_table_folder
+
+        write_table_folder("--tables", args.tables, files, [i for i in inputs if i])
+        say(args, f"Tables written to {args.tables}/ as CSV and LaTeX")
+
+
+def console():
+    from cfa_tool.reporting.terminal import SafeConsole
+
+    return SafeConsole(highlight=False, markup=False, emoji=False)
+
+
+def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
+                first: list[tuple[str, object, str]] = ()) -> int:
+    """Turn ``result`` into its report once, make every output asked for (``first``: files the command makes
+    itself, such as simulated rows), then show the report unless standard output carries an output, and write."""
+    from cfa_tool.reporting.reports import report_of
+    from cfa_tool.reporting.terminal import render_report
+
+    report = report_of(result)
+    files = list(first)
+    if getattr(args, "json", None):
+        from cfa_tool.reporting.json_report import to_json
+
+        files.append(("--json", to_json(result, report), f"JSON result written to {args.json}"))
+    files += document_files(args, report, getattr(args, "dpi", None))
+    tables = table_files(args, report, inputs)
+    if not args._stdout_taken:
+        render_report(report, console())
+    write_reports(args, files)
+    write_tables(args, tables, inputs)
+    return 0

@@ -5,7 +5,8 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.commands.common import add_report_options, check_files, report_files, require_suffix, say, write_reports
+from cfa_tool.commands.common import add_report_options, check_files, docx_file, report_files, require_suffix, say, \
+    table_files, write_reports, write_tables
 
 
 def add_parser(sub) -> None:
@@ -41,6 +42,7 @@ def add_parser(sub) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    from cfa_tool.reporting.reports import report_of
     from cfa_tool import cli
     from cfa_tool.language.parser import MODEL_SUFFIX
     from cfa_tool.output_files import check_new_file
@@ -58,10 +60,14 @@ def run(args: argparse.Namespace) -> int:
                      sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
                      replications=args.replications, seed=args.seed, target=args.target)
     files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
-    files += report_files(args, result, explore_html_report, explore_markdown)
+    report = report_of(result)  # the JSON's report, the Word document and the tables (one report model)
+    files += report_files(args, result, explore_html_report, explore_markdown, report)
+    files += docx_file(args, report)
+    tables = table_files(args, report, [args.data])
     if not args._stdout_taken:
         render_explore(result, cli._console())
     write_reports(args, files)
+    write_tables(args, tables, [args.data])
     if args.draft and not result.exploration.draft.usable:
         say(args, "The draft model declares no factor (too few items per factor); it holds comments only")
     return 0

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.commands.common import add_report_options, check_files, report_files, require_suffix, say, write_reports
+from cfa_tool.commands.common import add_report_options, check_files, emit_report, require_suffix, say
 
 
 def add_parser(sub) -> None:
@@ -55,7 +55,6 @@ def run(args: argparse.Namespace) -> int:
 
     from cfa_tool import cli
     from cfa_tool.errors import OptionError
-    from cfa_tool.reporting.score_report import render_scores, scores_html_report, scores_markdown
     from cfa_tool.workflows.factor_scores import score_with_saved_fit, scores
 
     require_suffix("--output", args.output, ".csv", "the scores")
@@ -80,11 +79,8 @@ def run(args: argparse.Namespace) -> int:
                         missing_codes=args.missing_codes, keep=args.keep, ordinal=cli._ordinal_arg(args.ordinal),
                         ordinal_estimator=args.ordinal_estimator, missing=args.missing,
                         max_iterations=args.max_iterations)
-    files = [("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")]
-    files += report_files(args, result, scores_html_report, scores_markdown)
-    if not args._stdout_taken:
-        render_scores(result, cli._console())
-    write_reports(args, files)
+    rows = ("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")
+    emit_report(args, result, [args.model, args.data, args.from_fit], first=[rows])
     if result.low_determinacy:
         say(args, f"Caution: the determinacy of {', '.join(result.low_determinacy)} is below .80; see the report")
     return 0

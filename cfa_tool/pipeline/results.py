@@ -61,8 +61,9 @@ def _percent_below_all(share: float) -> str:
 
 
 @dataclass(frozen=True)
-class CheckResult:
-    """What ``check`` found: the parsed model and how the data cover its variables."""
+class CheckResult(Presentable):
+    """What ``check`` found: the parsed model and how the data cover its variables (``summary()`` the text the
+    command prints; a notebook shows its report)."""
 
     spec: object  # the parsed model (language.spec.Spec)
     source: str

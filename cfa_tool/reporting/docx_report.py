@@ -83,14 +83,12 @@ def _add_table(document, table: ReportTable, number: int) -> None:
         document.add_paragraph()
 
 
-def docx_report(result, dpi: int = DEFAULT_DPI) -> bytes:
-    """The fit ``result`` as a .docx file's bytes."""
+def _document(title: str, notice) -> Document:
     document = Document()
     style = document.styles["Normal"]
     style.font.name = FONT
     style.font.size = Pt(12)
-    document.add_heading(result.model_name, level=1)
-    notice = T.problem_notice(result)
+    document.add_heading(title, level=1)
     if notice is not None:  # problems first
         heading = document.add_paragraph()
         run = heading.add_run(notice.heading)
@@ -98,6 +96,52 @@ def docx_report(result, dpi: int = DEFAULT_DPI) -> bytes:
         run.font.color.rgb = PROBLEM_RED
         for line in notice.lines:
             document.add_paragraph(line, style="List Bullet")
+    return document
+
+
+def _saved(document) -> bytes:
+    buffer = io.BytesIO()
+    document.save(buffer)
+    return buffer.getvalue()
+
+
+def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
+    """Any command's report (cfa_tool.reporting.document.Report) as a .docx file's bytes: the problems first,
+    what was done, the methods paragraph, the numbered tables with their notes, the figures, the notes and the
+    cautions."""
+    document = _document(report.title, report.notice)
+    for line in report.lines:
+        document.add_paragraph(line)
+    if report.paragraph:
+        document.add_heading("Method and results", level=2)
+        document.add_paragraph(report.paragraph)
+    for number, table in enumerate(report.tables, start=1):
+        _add_table(document, table, number)
+    if report.figures:
+        document.add_heading("Figures", level=2)
+        if png_converter() is None:
+            document.add_paragraph(NO_PICTURE)
+        else:
+            for number, figure in enumerate(report.figures, start=1):
+                _caption(document, f"Figure {number}", figure.title)
+                document.add_picture(io.BytesIO(svg_to_png(figure.svg, dpi)), width=Inches(6.5))
+                if figure.note:
+                    _note(document, figure.note)
+    if report.notes:
+        document.add_heading("Notes", level=2)
+        for line in report.notes:
+            document.add_paragraph(line, style="List Bullet")
+    if report.cautions:
+        document.add_heading("Cautions", level=2)
+        for line in report.cautions:
+            document.add_paragraph(line)
+    return _saved(document)
+
+
+def docx_report(result, dpi: int = DEFAULT_DPI) -> bytes:
+    """The fit ``result`` as a .docx file's bytes."""
+    notice = T.problem_notice(result)
+    document = _document(result.model_name, notice)
     d = result.data
     document.add_paragraph(f"Data: {d.source}; {d.n_obs} rows analysed of {d.rows_read} read. {T.status_line(result)}.")
     document.add_heading("Method and results", level=2)
@@ -118,6 +162,4 @@ def docx_report(result, dpi: int = DEFAULT_DPI) -> bytes:
     document.add_heading("Cautions", level=2)
     document.add_paragraph(GUIDE_NOTE)
     document.add_paragraph(HIGH_STAKES_NOTE)
-    buffer = io.BytesIO()
-    document.save(buffer)
-    return buffer.getvalue()
+    return _saved(document)

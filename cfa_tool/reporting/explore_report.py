@@ -344,5 +344,25 @@ def explore_markdown(result) -> str:
     return "\n".join(parts)
 
 
-__all__ = ["explore_html_fragment", "explore_html_report", "explore_markdown", "render_explore", "render_explore_text",
+def explore_report(result):
+    """The exploration as the one report model (cfa_tool.reporting.document.Report): what ``--docx``,
+    ``--tables`` and a saved result's report hold."""
+    from cfa_tool.reporting.document import Figure, Report, ResultKind
+
+    notice = problem_notice(result)
+    confirmation = result.split.confirmation if result.split is not None else None
+    second = T.problem_notice(confirmation) if confirmation is not None else None
+    if second is not None:
+        lines = (notice.lines if notice is not None else ()) + tuple(f"Confirmation half: {x}" for x in second.lines)
+        notice = T.ProblemNotice(notice.heading if notice is not None else second.heading, lines,
+                                 second.inadmissible or notice is not None)
+    lines = tuple(header_lines(result)) + tuple(result.reasons()) + (solution_line(result),)
+    notes = tuple(split_lines(result)) + ("The draft model file is written by --draft and held in the JSON result.",) \
+        + tuple(result.notes)
+    return Report(ResultKind.EXPLORE, "Exploratory factor analysis", notice, lines,
+                  tuple(explore_tables(result) + confirmation_tables(result)), notes, (_rules_caution(), GUIDE_NOTE),
+                  figures=(Figure("Scree plot: eigenvalues beside those of random data", scree_svg(result)),))
+
+
+__all__ = ["explore_html_fragment", "explore_report", "explore_html_report", "explore_markdown", "render_explore", "render_explore_text",
            "scree_svg"]

@@ -65,7 +65,10 @@ def heat_map(result, group: int = 0) -> str:
 
 def problem_banner(result) -> str:
     """The problems of the solution as a banner above everything else ('' when there are none)."""
-    notice = T.problem_notice(result)
+    return notice_html(T.problem_notice(result))
+
+
+def notice_html(notice: T.ProblemNotice | None) -> str:
     if notice is None:
         return ""
     cls = "problems" if notice.inadmissible else "problems caution-only"
@@ -163,3 +166,34 @@ def html_report(result) -> str:
     return (f'<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">'
             f'<meta name="viewport" content="width=device-width, initial-scale=1">'
             f"<title>{esc(result.model_name)}</title><style>{CSS}</style></head>\n<body>\n{body}\n</body></html>\n")
+
+
+def report_html_fragment(report, heading: bool = False) -> str:
+    """Any command's report (cfa_tool.reporting.document.Report) as an HTML fragment (also what notebooks show):
+    the problems first, then (with ``heading``) the title, what was done, the tables, the notes and the cautions.
+    Pictures are images of their SVG (a data address), so that nothing in a saved result can run as a script."""
+    import base64
+
+    parts = [notice_html(report.notice)] + ([f"<h1>{esc(report.title)}</h1>"] if heading else [])
+    parts += [f'<p class="note">{esc(line)}</p>' for line in report.lines]
+    if report.paragraph:
+        parts += ["<h2>Summary for a paper</h2>", f'<p class="summary" id="methods-paragraph">{esc(report.paragraph)}</p>']
+    for figure in report.figures:
+        data = base64.b64encode(figure.svg.encode("utf-8")).decode("ascii")
+        parts += [f'<figure class="diagram"><figcaption>{esc(figure.title)}</figcaption>'
+                  f'<img alt="{esc(figure.title)}" src="data:image/svg+xml;base64,{data}"></figure>']
+        if figure.note:
+            parts.append(f'<p class="note">{esc(figure.note)}</p>')
+    parts += [table_html(t) for t in report.tables]
+    if report.notes:
+        parts.append('<ul class="warnings">' + "".join(f"<li>{esc(w)}</li>" for w in report.notes) + "</ul>")
+    parts += [f'<p class="caution">{esc(c)}</p>' for c in report.cautions]
+    return "\n".join(p for p in parts if p)
+
+
+def report_html(report) -> str:
+    """Any command's report as one self-contained HTML file."""
+    body = f'{report_html_fragment(report, heading=True)}\n<p class="note">Made by cfa-tool {esc(__version__)}.</p>'
+    return (f'<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">'
+            f'<meta name="viewport" content="width=device-width, initial-scale=1">'
+            f"<title>{esc(report.title)}</title><style>{CSS}</style></head>\n<body>\n{body}\n</body></html>\n")

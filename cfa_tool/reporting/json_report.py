@@ -1,4 +1,5 @@
-"""JSON output: a result's dictionary, with stable key order."""
+"""JSON output: a result's dictionary, with stable key order, the command that made it and its report (so
+that ``cfa-tool report`` can write any format later without fitting again)."""
 
 from __future__ import annotations
 
@@ -7,8 +8,13 @@ import json
 from cfa_tool.version import __version__
 
 
-def to_json(result) -> str:
-    """Any result object with ``to_dict()``: a fit, a comparison, an invariance ladder, a replication."""
+def to_json(result, report=None) -> str:
+    """Any result object with ``to_dict()``: a fit, a comparison, an invariance ladder, a replication...;
+    ``report``: its report when the caller has made it already."""
+    from cfa_tool.reporting.reports import kind_of, report_of
+
     payload = {"tool": "cfa-tool", "version": __version__}
-    payload.update(result.to_dict())
+    payload.update(result.to_dict())  # a result's problems first, after the tool's name and version
+    payload["command"] = kind_of(result).value
+    payload["report"] = (report if report is not None else report_of(result)).to_dict()
     return json.dumps(payload, indent=2, allow_nan=False) + "\n"

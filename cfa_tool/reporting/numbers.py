@@ -33,3 +33,19 @@ def p_value(value) -> str:
     if missing(value):
         return ""
     return "< .001" if value < 0.001 else unit(value, 3)
+
+
+def signed(value, digits: int = 3) -> str:
+    """A change bounded by 1 in size with its sign and without its leading zero (+.026, -.035)."""
+    if missing(value):
+        return ""
+    text = unit(value, digits)
+    return text if text.startswith("-") else "+" + text
+
+
+def short(value) -> str:
+    """A value below 1 as given (no trailing zeros) without its leading zero (.05, .08)."""
+    if missing(value):
+        return ""
+    text = f"{value:g}"
+    return text[1:] if text.startswith("0.") else ("-" + text[2:] if text.startswith("-0.") else text)

@@ -1,51 +1,27 @@
 """The reporting layer's presenter: how result objects made below this layer show themselves
-(installed by the package's top module, see :mod:`cfa_tool.views`)."""
+(installed by the package's top module, see :mod:`cfa_tool.views`).  Every result but a fit and an
+exploration shows the one report model (cfa_tool.reporting.document)."""
 
 from __future__ import annotations
 
 
-def _workflow_renderer(result: object):
-    """The terminal renderer of a workflow's result (None for a fit, scores or an exploration)."""
-    from cfa_tool.reporting import workflow_text as W
-    from cfa_tool.workflows.compare import Comparison
-    from cfa_tool.workflows.invariance import InvarianceResult
-    from cfa_tool.workflows.montecarlo import MonteCarloPower
-    from cfa_tool.workflows.power import PowerResult
-    from cfa_tool.workflows.replication import Replication
-    from cfa_tool.workflows.simulation import SimulatedData
+def _has_own_report(result: object) -> bool:
+    """A fit and an exploration have reports of their own layout; every other result the report model's."""
+    from cfa_tool.pipeline.results import FitResult
+    from cfa_tool.workflows.explore import ExploreResult
 
-    for kind, render in ((Comparison, W.render_comparison), (InvarianceResult, W.render_invariance),
-                         (MonteCarloPower, W.render_montecarlo), (PowerResult, W.render_power),
-                         (SimulatedData, W.render_population)):
-        if isinstance(result, kind):
-            return render
-    if isinstance(result, Replication):
-        return lambda rep, console: W.render_replication([rep], console)
-    return None
-
-
-def _console_text(render, result: object, width: int) -> str:
-    import io
-
-    from cfa_tool.reporting.terminal import SafeConsole
-
-    buffer = io.StringIO()
-    render(result, SafeConsole(file=buffer, width=width, no_color=True, highlight=False, emoji=False, markup=False))
-    return buffer.getvalue()
+    return isinstance(result, (FitResult, ExploreResult))
 
 
 class ReportPresenter:
     def text(self, result: object, width: int = 120) -> str:
-        render = _workflow_renderer(result)
-        if render is not None:
-            return _console_text(render, result, width)
+        if not _has_own_report(result):
+            from cfa_tool.reporting.reports import report_of
+            from cfa_tool.reporting.terminal import report_text
+
+            return report_text(report_of(result), width)
         from cfa_tool.workflows.explore import ExploreResult
-        from cfa_tool.workflows.factor_scores import ScoreResult
 
-        if isinstance(result, ScoreResult):
-            from cfa_tool.reporting.score_report import render_scores_text
-
-            return render_scores_text(result, width)
         if isinstance(result, ExploreResult):
             from cfa_tool.reporting.explore_report import render_explore_text
 
@@ -55,19 +31,13 @@ class ReportPresenter:
         return render_text(result, width)
 
     def notebook(self, result: object) -> str:
-        if _workflow_renderer(result) is not None:  # the terminal report, kept as it is laid out
-            import html
+        if not _has_own_report(result):
+            from cfa_tool.reporting.reports import report_of
+            from cfa_tool.reporting.html_report import report_html_fragment
 
-            from cfa_tool.errors import printable
-
-            return f"<pre>{html.escape(printable(self.text(result, 110), keep_newlines=True))}</pre>"
+            return report_html_fragment(report_of(result), heading=True)
         from cfa_tool.workflows.explore import ExploreResult
-        from cfa_tool.workflows.factor_scores import ScoreResult
 
-        if isinstance(result, ScoreResult):
-            from cfa_tool.reporting.score_report import scores_html_fragment
-
-            return scores_html_fragment(result)
         if isinstance(result, ExploreResult):
             from cfa_tool.reporting.explore_report import explore_html_fragment
 

@@ -1,13 +1,9 @@
-"""The report of a factor-score run: the shared report tables (ReportTable), drawn in the terminal,
-HTML and Markdown by the existing renderers.  Problems of the fitted solution come first."""
+"""The report of a factor-score run in the one report model (cfa_tool.reporting.document.Report), which every
+writer draws.  Problems of the fitted solution come first."""
 
 from __future__ import annotations
 
-import io
-
 from cfa_tool.reporting import tables as T
-from cfa_tool.reporting.escape import html_text as esc
-from cfa_tool.reporting.escape import markdown_text
 from cfa_tool.reporting.numbers import unit
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
@@ -135,79 +131,12 @@ def notes(result) -> list[str]:
     return list(result.fit.warnings) + list(result.notes)
 
 
-def render_scores(result, console) -> None:
-    from rich.text import Text
+def scores_report(result):
+    """The scores' report as the one report model (cfa_tool.reporting.document.Report): what every view and
+    file shows, and what a saved result holds."""
+    from cfa_tool.reporting.document import Report, ResultKind
 
-    from cfa_tool.reporting.terminal import problem_panel, rich_table
-
-    notice = T.problem_notice(result.fit)
-    if notice is not None:
-        console.print(problem_panel(notice))
-        console.print()
-    console.print(Text(f"Factor scores: {result.fit.model_name}", style="bold underline"))
-    for line in header_lines(result):
-        console.print(line)
-    console.print()
-    for line in caution_lines(result):
-        console.print(Text(line, style="bold"))
-    for table in score_tables(result):
-        console.print(rich_table(table))
-    if notes(result):
-        console.print(Text("Notes", style="bold"))
-        for line in notes(result):
-            console.print(f"  - {line}")
-        console.print()
-    console.print(Text(SCORES_CAUTION, style="italic"))
-    console.print(Text(HIGH_STAKES_NOTE, style="italic"))
-
-
-def render_scores_text(result, width: int = 120) -> str:
-    from cfa_tool.reporting.terminal import SafeConsole
-
-    buffer = io.StringIO()
-    render_scores(result, SafeConsole(file=buffer, width=width, no_color=True, highlight=False, emoji=False, markup=False))
-    return buffer.getvalue()
-
-
-def scores_html_fragment(result) -> str:
-    from cfa_tool.reporting.html_report import problem_banner, table_html
-
-    parts = [problem_banner(result.fit)]
-    parts += [f'<p class="note">{esc(line)}</p>' for line in header_lines(result)]
-    parts += [f'<p class="caution">{esc(line)}</p>' for line in caution_lines(result)]
-    parts += [table_html(t) for t in score_tables(result)]
-    return "\n".join(p for p in parts if p)
-
-
-def scores_html_report(result) -> str:
-    from cfa_tool.version import __version__
-    from cfa_tool.reporting.html_report import CSS
-
-    sections = [scores_html_fragment(result).replace(
-        '<p class="note">', f"<h1>Factor scores: {esc(result.fit.model_name)}</h1>\n<p class=\"note\">", 1)]
-    if notes(result):
-        sections.append("<h2>Notes</h2>")
-        sections.append('<ul class="warnings">' + "".join(f"<li>{esc(w)}</li>" for w in notes(result)) + "</ul>")
-    sections += ["<h2>Cautions</h2>", f'<p class="caution">{esc(SCORES_CAUTION)}</p>',
-                 f'<p class="caution">{esc(HIGH_STAKES_NOTE)}</p>', f'<p class="note">Made by cfa-tool {esc(__version__)}.</p>']
-    title = esc(f"Factor scores: {result.fit.model_name}")
-    return (f'<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">'
-            f'<meta name="viewport" content="width=device-width, initial-scale=1">'
-            f"<title>{title}</title><style>{CSS}</style></head>\n<body>\n" + "\n".join(sections) + "\n</body></html>\n")
-
-
-def scores_markdown(result) -> str:
-    from cfa_tool.reporting.text_formats import markdown_table
-
-    parts = []
-    notice = T.problem_notice(result.fit)
-    if notice is not None:
-        parts += [f"## {markdown_text(notice.heading)}", ""] + [f"- {markdown_text(line)}" for line in notice.lines] + [""]
-    parts += [f"# Factor scores: {markdown_text(result.fit.model_name)}", ""]
-    parts += [markdown_text(line) + "  " for line in header_lines(result)] + [""]
-    parts += [f"**{markdown_text(line)}**" for line in caution_lines(result)] + [""]
-    parts += [markdown_table(t) for t in score_tables(result)]
-    if notes(result):
-        parts += ["## Notes", ""] + [f"- {markdown_text(w)}" for w in notes(result)] + [""]
-    parts += ["## Cautions", "", markdown_text(SCORES_CAUTION), "", markdown_text(HIGH_STAKES_NOTE), ""]
-    return "\n".join(parts)
+    return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", T.problem_notice(result.fit),
+                  tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
+                  tuple(notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE),
+                  problem_table=T.problem_table(result.fit))

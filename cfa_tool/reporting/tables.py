@@ -47,6 +47,33 @@ class ReportTable:
     values: tuple[tuple, ...] | None = None
     faint: tuple[tuple[int, int], ...] = ()  # (row, column) cells shown faintly (e.g. small loadings)
 
+    def to_dict(self) -> dict:
+        """The table as JSON holds it (a saved result carries its report: see reporting.document)."""
+        return {"key": self.key, "title": self.title, "columns": list(self.columns), "align": list(self.align),
+                "rows": [list(r) for r in self.rows], "note": self.note, "flagged": list(self.flagged),
+                "value_columns": None if self.value_columns is None else list(self.value_columns),
+                "values": None if self.values is None else [[_plain(v) for v in row] for row in self.values],
+                "faint": [list(f) for f in self.faint]}
+
+    @classmethod
+    def from_dict(cls, d: dict) -> "ReportTable":
+        return cls(str(d["key"]), str(d["title"]), tuple(map(str, d["columns"])), tuple(map(str, d["align"])),
+                   tuple(tuple(map(str, r)) for r in d["rows"]), d.get("note"), tuple(map(int, d.get("flagged", ()))),
+                   None if d.get("value_columns") is None else tuple(map(str, d["value_columns"])),
+                   None if d.get("values") is None else tuple(tuple(r) for r in d["values"]),
+                   tuple((int(i), int(j)) for i, j in d.get("faint", ())))
+
+
+def _plain(value):
+    """A table value as JSON holds it: numpy numbers as Python numbers, a number that is not finite as null."""
+    if isinstance(value, (bool, np.bool_)):
+        return bool(value)
+    if isinstance(value, (int, np.integer)):
+        return int(value)
+    if isinstance(value, (float, np.floating)):
+        return float(value) if np.isfinite(value) else None
+    return value
+
 
 def _table(key: str, title: str, columns: list[tuple[str, str]], rows: list[list[str]], note: str | None = None,
            flagged: tuple[int, ...] = (), values: tuple[list[str], list[list]] | None = None) -> ReportTable:

@@ -40,6 +40,8 @@ def _table(title: str, columns: list[tuple[str, str]]) -> Table:
 
 def rich_table(report: ReportTable) -> Table:
     table = _table(report.title, [(c, "left" if a == "l" else "right") for c, a in zip(report.columns, report.align)])
+    for column in table.columns:
+        column.overflow = "fold"  # a narrow terminal wraps a long word; it never cuts one short
     faint = set(report.faint)
     for k, row in enumerate(report.rows):
         cells = [Text(v, style="dim") if (k, j) in faint else v for j, v in enumerate(row)]
@@ -108,4 +110,30 @@ def render_text(result, width: int = 120) -> str:
     buffer = io.StringIO()
     console = SafeConsole(file=buffer, width=width, no_color=True, highlight=False, emoji=False, markup=False)
     render(result, console)
+    return buffer.getvalue()
+
+
+def render_report(report, console: Console) -> None:
+    """Any command's report (cfa_tool.reporting.document.Report): the problems first, then what was done, the
+    tables, the notes and the cautions."""
+    if report.notice is not None:
+        console.print(problem_panel(report.notice))
+        console.print()
+    console.print(Text(report.title, style="bold underline"))
+    for line in report.lines:
+        console.print(line)
+    if report.paragraph:
+        console.print()
+        console.print(report.paragraph)
+    for table in report.tables:
+        console.print(rich_table(table))
+    for line in report.notes:
+        console.print(line)
+    for line in report.cautions:
+        console.print(Text(line, style="italic"))
+
+
+def report_text(report, width: int = 120) -> str:
+    buffer = io.StringIO()
+    render_report(report, SafeConsole(file=buffer, width=width, no_color=True, highlight=False, emoji=False, markup=False))
     return buffer.getvalue()

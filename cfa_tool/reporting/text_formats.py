@@ -112,3 +112,38 @@ def latex_table(table: ReportTable) -> str:
 def latex_tables(result) -> str:
     header = "% Tables written by cfa-tool; needs \\usepackage{booktabs}\n"
     return header + "\n".join(latex_table(t) for t in all_tables(result))
+
+
+def notice_table(notice: T.ProblemNotice) -> ReportTable:
+    """The problems that every view shows first, as a table for data files (where no notice can go)."""
+    return ReportTable("problems", notice.heading, ("Problem",), ("l",), tuple((line,) for line in notice.lines))
+
+
+def report_markdown(report) -> str:
+    """Any command's report (cfa_tool.reporting.document.Report) as Markdown: the problems first."""
+    parts = []
+    if report.notice is not None:
+        parts += [f"## {markdown_text(report.notice.heading)}", ""] + [f"- {markdown_text(line)}"
+                                                                        for line in report.notice.lines] + [""]
+    parts += [f"# {markdown_text(report.title)}", ""]
+    if report.lines:
+        parts += [markdown_text(line) + "  " for line in report.lines] + [""]
+    if report.paragraph:
+        parts += ["## Summary for a paper", "", markdown_text(report.paragraph), ""]
+    parts += [markdown_table(t) for t in report.tables]
+    if report.notes:
+        parts += ["## Notes", ""] + [f"- {markdown_text(w)}" for w in report.notes] + [""]
+    if report.cautions:
+        parts += ["## Cautions", ""] + [markdown_text(c) + "\n" for c in report.cautions]
+    return "\n".join(parts)
+
+
+def report_table_files(report) -> dict[str, str]:
+    """Every table of a report as CSV and LaTeX, file name -> text; the problems first."""
+    problems = report.problem_table or (notice_table(report.notice) if report.notice is not None else None)
+    tables = ([problems] if problems is not None else []) + list(report.tables)
+    files = {}
+    for table in tables:
+        files[f"{table.key}.csv"] = csv_table(table)
+        files[f"{table.key}.tex"] = latex_table(table)
+    return files

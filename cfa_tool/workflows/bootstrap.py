@@ -30,6 +30,7 @@ from cfa_tool.language.spec import Spec
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
 from cfa_tool.pipeline.inputs import continuous_only, converged, read_inputs, without_exploratory_blocks
 from cfa_tool.pipeline.results import FitResult, clean
+from cfa_tool.views import Presentable
 from cfa_tool.workflows.parallel import run_tasks
 
 
@@ -48,8 +49,11 @@ class BootInterval:
                       "percentile_ci95": list(self.percentile), "bca_ci95": list(self.bca), "bootstrap_se": self.bootstrap_se})
 
 
-@dataclass(frozen=True)
-class BootstrapResult:
+@dataclass(frozen=True, eq=False)
+class BootstrapResult(Presentable):
+    """A fit and its bootstrap: intervals of every estimate and the Bollen-Stine p-value."""
+
+    fit: FitResult
     replications: int
     converged: int
     seed: int
@@ -58,10 +62,12 @@ class BootstrapResult:
     bollen_stine_converged: int | None
 
     def to_dict(self) -> dict:
-        return clean({"replications": self.replications, "converged": self.converged,
-                      "not_converged": self.replications - self.converged, "seed": self.seed,
-                      "bollen_stine_p_value": self.bollen_stine_p, "bollen_stine_converged": self.bollen_stine_converged,
-                      "intervals": [i.to_dict() for i in self.intervals]})
+        """The fit and, under "result", the bootstrap."""
+        return {"fit": self.fit.to_dict(), "result": clean({
+            "replications": self.replications, "converged": self.converged,
+            "not_converged": self.replications - self.converged, "seed": self.seed,
+            "bollen_stine_p_value": self.bollen_stine_p, "bollen_stine_converged": self.bollen_stine_converged,
+            "intervals": [i.to_dict() for i in self.intervals]})}
 
 
 def _replicate(task):
@@ -192,7 +198,8 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
         converged_bs = len(bdraws)
         if bdraws:
             p_bs = float(np.mean([d[3] >= result.fit.chi_square for d in bdraws]))
-    return BootstrapResult(replications, len(ok), seed, tuple(intervals), p_bs, converged_bs)
+    return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed,
+                           intervals=tuple(intervals), bollen_stine_p=p_bs, bollen_stine_converged=converged_bs)
 
 
 def _percentile(draws: np.ndarray) -> tuple[float, float]:
@@ -218,7 +225,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
               bollen_stine: bool = True, bca: bool = True, workers: int | None = None, cluster: str | None = None,
               progress=None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               keep: tuple[str, ...] | list[str] = ()):
-    """Fit the model, then bootstrap it: returns (FitResult, BootstrapResult)."""
+    """Fit the model, then bootstrap it: the result holds the fit (``.fit``) and its bootstrap."""
     replications, seed = bootstrap_options(replications, seed, workers)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     continuous_only(spec, "bootstrap")
@@ -227,5 +234,5 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     moments = sample_moments(frame, spec.observed_names, source)
     result = converged(fit_moments(spec, moments, FitOptions()))
     order = [moments.names.index(n) for n in result.observed]
-    boot = bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, cluster, progress)
-    return result, boot
+    return bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, cluster,
+                         progress)

@@ -31,6 +31,7 @@ from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
 from cfa_tool.pipeline.results import FitResult, clean
+from cfa_tool.views import Presentable
 from cfa_tool.workflows.parallel import run_tasks
 from cfa_tool.workflows.simulation import simulate_rows
 
@@ -54,8 +55,11 @@ class Cutoff:
         return clean(dict(self.__dict__))
 
 
-@dataclass(frozen=True)
-class CutoffResult:
+@dataclass(frozen=True, eq=False)
+class CutoffResult(Presentable):
+    """A fit and the fit-index cutoffs simulated for its model and sample size."""
+
+    fit: FitResult
     misspecification: str
     replications: int
     converged_correct: int
@@ -66,10 +70,12 @@ class CutoffResult:
     misspecification_size: float = float("nan")  # standardized size of what is left out
 
     def to_dict(self) -> dict:
-        return clean({"misspecification": self.misspecification, "replications": self.replications,
-                      "converged_correct": self.converged_correct, "converged_misspecified": self.converged_misspecified,
-                      "seed": self.seed, "n_obs": self.n_obs, "misspecification_size": self.misspecification_size,
-                      "cutoffs": [c.to_dict() for c in self.cutoffs]})
+        """The fit and, under "result", the cutoffs."""
+        return {"fit": self.fit.to_dict(), "result": clean({
+            "misspecification": self.misspecification, "replications": self.replications,
+            "converged_correct": self.converged_correct, "converged_misspecified": self.converged_misspecified,
+            "seed": self.seed, "n_obs": self.n_obs, "misspecification_size": self.misspecification_size,
+            "cutoffs": [c.to_dict() for c in self.cutoffs]})}
 
 
 def _replicate(task):
@@ -171,7 +177,9 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
             beyond = bool(observed[index] < cut) if index == "cfi" else bool(observed[index] > cut)
         cutoffs.append(Cutoff(index, level, cut, float(observed[index]), beyond,
                               separating_n.get((index, level)), separating_size.get((index, level))))
-    return CutoffResult(what, replications, len(correct), len(mis), seed, n, tuple(cutoffs), size)
+    return CutoffResult(fit=result, misspecification=what, replications=replications, converged_correct=len(correct),
+                        converged_misspecified=len(mis), seed=seed, n_obs=n, cutoffs=tuple(cutoffs),
+                        misspecification_size=size)
 
 
 def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.SeedSequence, workers, cluster, progress):
@@ -210,9 +218,10 @@ def _cutoffs(correct: np.ndarray, mis: np.ndarray) -> dict[tuple[str, float], fl
 def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 200, seed: int = 1,
             workers: int | None = None, cluster: str | None = None, progress=None, sheet: str | None = None,
             missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = ()):
-    """Fit the model, then simulate model-specific fit-index cutoffs: returns (FitResult, CutoffResult)."""
+    """Fit the model, then simulate model-specific fit-index cutoffs: the result holds the fit (``.fit``) and the
+    cutoffs."""
     replications, seed = cutoff_options(replications, seed, workers)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     continuous_only(spec, "cutoffs")
     result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
-    return result, fit_cutoffs(spec, result, replications, seed, workers, cluster, progress)
+    return fit_cutoffs(spec, result, replications, seed, workers, cluster, progress)

@@ -61,6 +61,16 @@ class Replication(Presentable):
         })
 
 
+@dataclass(frozen=True, eq=False)
+class Replications(Presentable):
+    """The replications of one run: one (new data) or two (random halves, each way)."""
+
+    replications: tuple[Replication, ...]
+
+    def to_dict(self) -> dict:
+        return {"replications": [r.to_dict() for r in self.replications]}
+
+
 def discrepancy(S: np.ndarray, sigma: np.ndarray) -> float:
     """ML discrepancy F(S, Sigma) = log|Sigma| + tr(S Sigma^-1) - log|S| - p."""
     return float(log_det_pd(sigma) + np.trace(np.linalg.solve(sigma, S)) - log_det_pd(S) - len(S))

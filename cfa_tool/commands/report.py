@@ -1,0 +1,68 @@
+"""``cfa-tool report``: turn a saved JSON result (any command's --json file) into the terminal view, HTML,
+Markdown, Word or CSV/LaTeX tables later, without fitting again; the result's input is never replaced."""
+
+from __future__ import annotations
+
+import argparse
+
+from cfa_tool.commands.common import add_report_options, check_files, console, document_files, table_files, \
+    write_reports, write_tables
+
+
+def add_parser(sub) -> None:
+    p = sub.add_parser("report", help="write a saved result (a command's --json file) as HTML, Markdown, Word or "
+                                      "tables, without fitting again")
+    p.add_argument("result", metavar="RESULT", help="JSON file written by a command's --json option")
+    add_report_options(p, json=False)
+    p.add_argument("--dpi", type=int, default=300, help="resolution of pictures in the Word document (default 300)")
+
+
+def read_result(path: str) -> dict:
+    """The JSON of a saved result; a one-line error naming the file when it cannot be read as JSON."""
+    import json
+
+    from cfa_tool.errors import OptionError
+    from cfa_tool.output_files import shown
+
+    try:
+        with open(path, "rb") as handle:
+            raw = handle.read()
+    except FileNotFoundError:
+        raise OptionError(f"{shown(path)}: no such file") from None
+    except IsADirectoryError:
+        raise OptionError(f"{shown(path)}: is a folder, not a result file") from None
+    except OSError as exc:
+        raise OptionError(f"{shown(path)}: cannot be read ({exc.strerror or exc})") from None
+    try:
+        return json.loads(raw.decode("utf-8-sig"))
+    except UnicodeDecodeError:
+        raise OptionError(f"{shown(path)}: not a JSON result (not UTF-8 text)") from None
+    except json.JSONDecodeError as exc:
+        raise OptionError(f"{shown(path)}: not a JSON result (line {exc.lineno}, column {exc.colno}: {exc.msg})") from None
+
+
+def run(args: argparse.Namespace) -> int:
+    from cfa_tool import options as check
+    from cfa_tool.output_files import shown
+    from cfa_tool.reporting.reports import saved_report
+    from cfa_tool.reporting.terminal import render_report
+
+    args.dpi = check.whole_number("--dpi", args.dpi, 72, 1200)
+    check_files(args, [], [args.result])  # never the result file itself, never a file the run did not create
+    report = saved_report(read_result(args.result), shown(args.result))
+    if args.docx and report.figures:
+        from cfa_tool.reporting.picture import png_converter
+
+        if png_converter() is None:  # said before the work, not after
+            from cfa_tool.reporting.docx_report import NO_PICTURE
+
+            import sys
+
+            print(f"cfa-tool: note: {NO_PICTURE}", file=sys.stderr)
+    files = document_files(args, report, args.dpi)
+    tables = table_files(args, report, [args.result])
+    if not args._stdout_taken:
+        render_report(report, console())
+    write_reports(args, files)
+    write_tables(args, tables, [args.result])
+    return 0

@@ -1,0 +1,73 @@
+"""One report model for every command: a result is turned into a :class:`Report` once (a title, the problems
+that come first, what was done, the tables, notes and cautions), and the terminal, HTML, Markdown, Word and
+CSV/LaTeX writers draw that same report.  A saved JSON result carries its report, so that ``cfa-tool report``
+writes any format later without fitting again.  Which result has which report: cfa_tool.reporting.reports."""
+
+from __future__ import annotations
+
+import enum
+from dataclasses import dataclass
+
+from cfa_tool.reporting.tables import ProblemNotice, ReportTable
+
+
+class ResultKind(enum.Enum):
+    """Which command made a result (written into its JSON as "command")."""
+
+    FIT = "fit"
+    CHECK = "check"
+    COMPARE = "compare"
+    INVARIANCE = "invariance"
+    REPLICATE = "replicate"
+    BOOTSTRAP = "bootstrap"
+    CUTOFFS = "cutoffs"
+    POWER = "power"
+    POWER_SIMULATION = "power-simulation"
+    SIMULATE = "simulate"
+    SCORES = "scores"
+    EXPLORE = "explore"
+
+
+@dataclass(frozen=True)
+class Figure:
+    """A picture of the report (SVG text) with its title and the note under it."""
+
+    title: str
+    svg: str
+    note: str = ""
+
+
+@dataclass(frozen=True)
+class Report:
+    kind: ResultKind
+    title: str
+    notice: ProblemNotice | None  # problems of a solution: first in every view
+    lines: tuple[str, ...]  # what was done and on what data, under the title
+    tables: tuple[ReportTable, ...]
+    notes: tuple[str, ...] = ()  # after the tables
+    cautions: tuple[str, ...] = ()  # last, in every view
+    paragraph: str | None = None  # the methods-and-results paragraph for a paper
+    figures: tuple[Figure, ...] = ()
+    # the problems as a table for data files, when the solution's problems have more to say than the notice's
+    # lines (parameters, values, advice)
+    problem_table: ReportTable | None = None
+
+    def to_dict(self) -> dict:
+        notice = None if self.notice is None else {"heading": self.notice.heading, "lines": list(self.notice.lines),
+                                                   "inadmissible": self.notice.inadmissible}
+        return {"kind": self.kind.value, "title": self.title, "notice": notice, "lines": list(self.lines),
+                "tables": [t.to_dict() for t in self.tables], "notes": list(self.notes), "cautions": list(self.cautions),
+                "paragraph": self.paragraph, "figures": [{"title": f.title, "svg": f.svg, "note": f.note}
+                                                         for f in self.figures],
+                "problem_table": None if self.problem_table is None else self.problem_table.to_dict()}
+
+    @classmethod
+    def from_dict(cls, d: dict) -> "Report":
+        n = d.get("notice")
+        notice = None if n is None else ProblemNotice(str(n["heading"]), tuple(map(str, n["lines"])),
+                                                      bool(n["inadmissible"]))
+        return cls(ResultKind(d["kind"]), str(d["title"]), notice, tuple(map(str, d["lines"])),
+                   tuple(ReportTable.from_dict(t) for t in d["tables"]), tuple(map(str, d.get("notes", ()))),
+                   tuple(map(str, d.get("cautions", ()))), d.get("paragraph"),
+                   tuple(Figure(str(f["title"]), str(f["svg"]), str(f.get("note", ""))) for f in d.get("figures", ())),
+                   None if d.get("problem_table") is None else ReportTable.from_dict(d["problem_table"]))

@@ -1,0 +1,452 @@
+"""The reports of the workflows (comparisons, invariance ladders, replications, bootstrap, cutoffs, power,
+Monte Carlo power, simulated data) and of a model check, each made once as a :class:`Report` whose tables
+every writer draws.  Problems of a solution come first; the cautions come last."""
+
+from __future__ import annotations
+
+from cfa_tool.reporting import tables as T
+from cfa_tool.reporting.document import Report, ResultKind
+from cfa_tool.reporting.numbers import missing, num, p_value, short, signed, unit
+from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
+
+SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
+CHANGE_GUIDES = ("Changes in CFI and RMSEA are read against common-practice guides (a fall in CFI of more than .010, "
+                 "Cheung & Rensvold 2002; a rise in RMSEA of .015 or more, Chen 2007), which are conventions, not tests.")
+
+
+def _admissible_cell(result) -> str:
+    if not result.converged:
+        return "did not converge"
+    return "yes" if result.admissible else "NO"
+
+
+def _problem_lines(named_results) -> list[str]:
+    """One line per solution that is not admissible (problems first in every view)."""
+    return [f"The solution of {name} is not admissible (" + "; ".join(p.phrase() for p in r.problems if p.kind.inadmissible)
+            + "): do not interpret its estimates or fit, and do not choose it over another model on its fit."
+            for name, r in named_results if r.converged and not r.admissible]
+
+
+def _notice(problems: list[str], cautions: list[str] = ()) -> ProblemNotice | None:
+    if not problems and not cautions:
+        return None
+    return ProblemNotice(SOME_NOT_ADMISSIBLE if problems else T.CAUTION, tuple(problems) + tuple(cautions), bool(problems))
+
+
+def _fit_notice(result) -> ProblemNotice | None:
+    return T.problem_notice(result)
+
+
+# ---------------------------------------------------------------- compare
+
+_COMPARISON_ROWS = ("Admissible", "Free parameters", "Chi-square", "df", "p", "CFI", "TLI", "RMSEA",
+                    "  90% interval", "SRMR", "AIC", "BIC")
+_ROBUST_ROWS = ("Scaled chi-square", "  scaling factor", "  p", "Robust CFI", "Robust TLI", "Robust RMSEA",
+                "  90% interval")
+_COMPARISON_VALUES = ("Admissible", "Free parameters", "Chi-square", "df", "p", "CFI", "TLI", "RMSEA",
+                      "RMSEA 90% lower", "RMSEA 90% upper", "SRMR", "AIC", "BIC")
+_ROBUST_VALUES = ("Scaled chi-square", "Scaling factor", "Scaled p", "Robust CFI", "Robust TLI", "Robust RMSEA",
+                  "Robust RMSEA 90% lower", "Robust RMSEA 90% upper")
+
+
+def _comparison_cells(r, robust_rows: bool) -> tuple[list[str], list]:
+    """A model's column of the comparison table, as text and as numbers."""
+    width = len(_COMPARISON_ROWS) + (len(_ROBUST_ROWS) if robust_rows else 0)
+    values_width = len(_COMPARISON_VALUES) + (len(_ROBUST_VALUES) if robust_rows else 0)
+    if r.fit is None or not r.converged:
+        return [_admissible_cell(r)] + [""] * (width - 1), [_admissible_cell(r)] + [None] * (values_width - 1)
+    f = r.fit
+    low, high = f.rmsea_ci90
+    tested = f.df > 0
+    cells = [_admissible_cell(r), str(f.n_free_parameters), f"{f.chi_square:.3f}", str(f.df), p_value(f.p_value),
+             unit(f.cfi), unit(f.tli), unit(f.rmsea) if tested else "", f"[{unit(low)}, {unit(high)}]" if tested else "",
+             unit(f.srmr), num(f.aic, 1), num(f.bic, 1)]
+    values = [_admissible_cell(r), f.n_free_parameters, f.chi_square, f.df, f.p_value, f.cfi, f.tli,
+              f.rmsea if tested else None, low if tested else None, high if tested else None, f.srmr, f.aic, f.bic]
+    if robust_rows:
+        rb = r.robust
+        if rb is None:
+            cells += [""] * len(_ROBUST_ROWS)
+            values += [None] * len(_ROBUST_VALUES)
+        else:
+            rl, rh = rb.rmsea_robust_ci90
+            cells += [f"{rb.chi_square_scaled:.3f}", num(rb.scaling_factor), p_value(rb.p_value_scaled),
+                      unit(rb.cfi_robust), unit(rb.tli_robust), unit(rb.rmsea_robust), f"[{unit(rl)}, {unit(rh)}]"]
+            values += [rb.chi_square_scaled, rb.scaling_factor, rb.p_value_scaled, rb.cfi_robust, rb.tli_robust,
+                       rb.rmsea_robust, rl, rh]
+    return cells, values
+
+
+def comparison_report(comparison) -> Report:
+    named = list(zip(comparison.names, comparison.results))
+    problems = _problem_lines(named)
+    fitted = [(name, r) for name, r in named if r.converged and r.fit is not None]
+    lowest: dict[str, list[str]] = {}
+    for index in ("AIC", "BIC"):
+        scored = [(getattr(r.fit, index.lower()), name, r) for name, r in fitted
+                  if not missing(getattr(r.fit, index.lower()))]
+        if len(scored) > 1:
+            _, name, best = min(scored, key=lambda t: t[0])
+            if not best.admissible:
+                lowest.setdefault(name, []).append(index)
+    problems += [f"The lowest {' and '.join(indices)} belong{'s' if len(indices) == 1 else ''} to {name}, whose solution "
+                 f"is not admissible: that is no reason to prefer it." for name, indices in lowest.items()]
+    total = comparison.n_obs + comparison.rows_dropped
+    cautions = []
+    if comparison.rows_dropped > 0.05 * total:
+        cautions.append(f"{comparison.rows_dropped} of {total} rows ({100 * comparison.rows_dropped / total:.0f}%) miss an "
+                        f"answer on some model's variables and are left out of every model, so that all are compared on "
+                        f"the same rows; the rows left out may differ from those kept.")
+    lines = (f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
+             f"answer on any model's variables left out).",)
+    # one column per model, one row per index: readable in 80 columns for the usual two to four models
+    robust_rows = any(r.robust is not None for r in comparison.results)
+    cells = [_comparison_cells(r, robust_rows) for r in comparison.results]
+    labels = _COMPARISON_ROWS + (_ROBUST_ROWS if robust_rows else ())
+    rows = [[label, *[c[0][k] for c in cells]] for k, label in enumerate(labels)]
+    bad = any(r.converged and not r.admissible for r in comparison.results)
+    value_columns = ["Model", *_COMPARISON_VALUES, *(_ROBUST_VALUES if robust_rows else ())]
+    tables = [_table("model_fit", "Fit of each model", [("", "l")] + [(name, "r") for name in comparison.names], rows,
+                     flagged=(0,) if bad else (),
+                     values=(value_columns, [[name, *c[1]] for name, c in zip(comparison.names, cells)]))]
+    pairs: dict[tuple[str, str], list] = {}
+    for t in comparison.tests:
+        pairs.setdefault((t.restricted, t.general), []).append(t)
+    notes = []
+    for k, ((restricted, general), found) in enumerate(pairs.items()):  # one small table per nested pair
+        rows, values = [], []
+        for t in found:
+            if t.not_computed:
+                rows.append([t.method, f"not computed ({t.df_difference})", "", "", ""])
+                notes.append(f"{t.method}: not computed: {t.not_computed}.")
+            else:
+                rows.append([t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})", p_value(t.p_value),
+                             signed(t.delta_cfi), signed(t.delta_rmsea)])
+            values.append([t.method, None if t.not_computed else t.chi_square_difference, t.df_difference,
+                           None if t.not_computed else t.p_value, t.delta_cfi, t.delta_rmsea, t.not_computed])
+        tables.append(_table(f"difference_tests_{k + 1}", f"{restricted} (restricted) against {general}: difference tests",
+                             [("Test", "l"), ("Difference (df)", "r"), ("p", "r"), ("\u0394CFI", "r"), ("\u0394RMSEA", "r")],
+                             rows, values=(["Test", "Chi-square difference", "df difference", "p", "\u0394CFI",
+                                            "\u0394RMSEA", "Not computed because"], values)))
+    for n in comparison.not_nested:
+        advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
+        notes.append(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
+    if comparison.tests:
+        notes.append(CHANGE_GUIDES)
+    return Report(ResultKind.COMPARE, "Model comparison", _notice(problems, cautions), lines, tuple(tables),
+                  tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE))
+
+
+# ---------------------------------------------------------------- invariance
+
+def _level_fit_cells(result, adjusted: bool) -> tuple[list[str], list]:
+    fit, robust = result.fit, result.robust
+    if fit is None or not result.converged:
+        return ["did not converge", "", "", "", ""], [None] * 6
+    if adjusted and robust is not None:  # ordinal items: the adjusted statistic and robust indices
+        return ([f"{robust.chi_square_scaled:.2f} ({robust.df})", p_value(robust.p_value_scaled),
+                 unit(robust.cfi_robust), unit(robust.rmsea_robust), unit(fit.srmr)],
+                [robust.chi_square_scaled, robust.df, robust.p_value_scaled, robust.cfi_robust, robust.rmsea_robust,
+                 fit.srmr])
+    return ([f"{fit.chi_square:.2f} ({fit.df})", p_value(fit.p_value), unit(fit.cfi), unit(fit.rmsea), unit(fit.srmr)],
+            [fit.chi_square, fit.df, fit.p_value, fit.cfi, fit.rmsea, fit.srmr])
+
+
+def _step_cells(t, delta_srmr) -> tuple[list[str], list]:
+    return ([f"{t.chi_square_difference:.2f} ({t.df_difference})", p_value(t.p_value), signed(t.delta_cfi),
+             signed(t.delta_rmsea), "" if delta_srmr is None else signed(delta_srmr)],
+            [t.chi_square_difference, t.df_difference, t.p_value, t.delta_cfi, t.delta_rmsea, delta_srmr])
+
+
+CONFIGURAL_NOTE = ("The configural model holds when it fits by the guide values (CFI >= .95, RMSEA <= .06, SRMR <= .08; Hu & "
+                   "Bentler 1999). Change-in-fit guides are common practice: CFI falling by no more than .010 (Cheung & "
+                   "Rensvold 2002), RMSEA rising by less than .015, SRMR by less than .030 for loadings and .010 after "
+                   "(Chen 2007). All guides are conventions, not laws.")
+ADJUSTED_NOTE = ("Ordinal items: chi-square, CFI and RMSEA come from the scale-shifted adjusted statistic, and each "
+                 "difference test is adjusted in the same way (Asparouhov & Muthen 2006). The adjusted statistic's "
+                 "scale and shift are estimated anew for each model, so it can fall when constraints are added: "
+                 "compare steps by the difference tests, not by the statistics or indices of the levels.")
+
+
+def invariance_report(result) -> Report:
+    # two narrow tables (each level's own fit; each step against the one before) read in 80 columns;
+    # a partially invariant step shows first with every equality, then with the freed ones
+    levels, level_values, flagged = [], [], []
+    steps, step_values = [], []
+    adjusted = any(step.result.robust is not None for step in result.steps)
+    for step in result.steps:
+        label = f"{step.level} ({len(step.freed)} freed)" if step.partial else step.level
+        if step.partial and step.full_result is not None:
+            cells, values = _level_fit_cells(step.full_result, adjusted)
+            levels.append([f"{step.level} (all equal)", *cells, _admissible_cell(step.full_result)])
+            level_values.append([f"{step.level} (all equal)", *values, _admissible_cell(step.full_result)])
+            if step.full_result.converged and not step.full_result.admissible:
+                flagged.append(len(levels) - 1)
+            if step.full_test is not None:
+                before = result.steps[result.steps.index(step) - 1].result
+                srmr = step.full_result.fit.srmr - before.fit.srmr
+                cells, values = _step_cells(step.full_test, srmr)
+                steps.append([f"{step.level} (all equal)", *cells, "yes" if step.full_holds else "no"])
+                step_values.append([f"{step.level} (all equal)", *values, "yes" if step.full_holds else "no"])
+        cells, values = _level_fit_cells(step.result, adjusted)
+        levels.append([label, *cells, _admissible_cell(step.result)])
+        level_values.append([label, *values, _admissible_cell(step.result)])
+        if step.result.converged and not step.result.admissible:
+            flagged.append(len(levels) - 1)
+        verdict = ("yes" if step.holds else "no") + (" *" if step.conditional else "")
+        if step.versus_previous is not None:
+            cells, values = _step_cells(step.versus_previous, step.delta_srmr)
+            steps.append([label, *cells, verdict])
+            step_values.append([label, *values, verdict])
+        else:
+            steps.append([label, "its own fit", "", "", "", "", verdict])
+            step_values.append([label, None, None, None, None, None, None, verdict])
+    tables = [
+        _table("levels", "Fit of each level", [("Level", "l"), ("Chi-square (df)", "r"), ("p", "r"), ("CFI", "r"),
+                                                ("RMSEA", "r"), ("SRMR", "r"), ("Admissible", "l")], levels,
+               flagged=tuple(flagged),
+               values=(["Level", "Chi-square", "df", "p", "CFI", "RMSEA", "SRMR", "Admissible"], level_values)),
+        _table("steps", "Each step against the one before",
+               [("Level", "l"), ("Difference (df)", "r"), ("p", "r"), ("\u0394CFI", "r"), ("\u0394RMSEA", "r"),
+                ("\u0394SRMR", "r"), ("Holds", "l")], steps,
+               "* tested after a step that did not hold: the comparison is between models already rejected."
+               if any(step.conditional for step in result.steps) else None,
+               values=(["Level", "Chi-square difference", "df difference", "p", "\u0394CFI", "\u0394RMSEA", "\u0394SRMR",
+                        "Holds"], step_values)),
+    ]
+    notes = ([ADJUSTED_NOTE] if adjusted else []) + [CONFIGURAL_NOTE]
+    if result.freed:
+        many = len(result.groups) > 2
+        rows = [[f.level, f"{f.kind.replace('_', ' ')} {', '.join(f.variables)}", *([str(f.group)] if many else []),
+                 num(f.score, 2)] for f in result.freed]
+        values = [[f.level, f"{f.kind.replace('_', ' ')} {', '.join(f.variables)}", *([str(f.group)] if many else []),
+                   f.score] for f in result.freed]
+        columns = [("Level", "l"), ("Parameter", "l")] + ([("Group", "l")] if many else []) + [("Score test", "r")]
+        tables.append(_table("freed", "Parameters freed by the partial-invariance search", columns, rows,
+                             values=([c for c, _ in columns], values)))
+    for step in result.steps:
+        if step.stopped and (step.partial or step.stopped != "the step holds"):
+            freed_words = f"freed {len(step.freed)} parameter{'s' if len(step.freed) != 1 else ''} and " \
+                if step.partial else ""
+            notes.append(f"The search at the {step.level} step {freed_words}stopped: {step.stopped}.")
+        if not step.holds and step.culprits:
+            notes.append(f"Likeliest sources of misfit at the {step.level} step (score tests): " + "; ".join(
+                f"{c.kind.replace('_', ' ')} {', '.join(c.variables)} in {c.group} ({c.index:.2f})"
+                for c in step.culprits[:5]))
+    if result.latent_differences:
+        rows = [[d.factor, d.group, num(d.mean), num(d.se), f"[{num(d.ci95[0], 2)}, {num(d.ci95[1], 2)}]",
+                 p_value(d.p_value), num(d.standardized, 2), num(d.variance_ratio, 2)] for d in result.latent_differences]
+        values = [[d.factor, d.group, d.mean, d.se, d.ci95[0], d.ci95[1], d.p_value, d.standardized, d.variance_ratio]
+                  for d in result.latent_differences]
+        tables.append(_table("latent_differences", "Latent mean and variance differences",
+                             [("Factor", "l"), ("Group", "l"), ("Mean", "r"), ("SE", "r"), ("95% CI", "r"), ("p", "r"),
+                              ("d", "r"), ("Var. ratio", "r")], rows, result.latent_note or None,
+                             values=(["Factor", "Group", "Mean", "SE", "95% CI lower", "95% CI upper", "p", "d",
+                                      "Variance ratio"], values)))
+    elif result.latent_note:
+        notes.append(result.latent_note)
+    inadmissible = any(s.result.converged and not s.result.admissible for s in result.steps)
+    notice = None if not result.warnings else ProblemNotice(
+        SOME_NOT_ADMISSIBLE if inadmissible else T.CAUTION, tuple(result.warnings), inadmissible)
+    lines = (f"Reference group (factor means fixed at zero): {result.groups[0]}",
+             f"Each step after the configural one is judged by "
+             f"{result.rule.description.replace('alpha', unit(result.alpha, 2))}.")
+    return Report(ResultKind.INVARIANCE, f"Measurement invariance across {result.group_column} ({', '.join(result.groups)})",
+                  notice, lines, tuple(tables), tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE))
+
+
+# ---------------------------------------------------------------- replicate
+
+def replication_report(replications) -> Report:
+    reps = list(getattr(replications, "replications", None) or [replications])
+    problems, tables, notes = [], [], []
+    for k, rep in enumerate(reps):
+        problems += _problem_lines([(f"the calibration fit ({rep.calibration})", rep.calibration_result),
+                                    (f"the loose refit ({rep.validation})", rep.loose)])
+        cal = rep.calibration_result.fit
+        rows = [[f"Calibration fit (N = {rep.calibration_result.n_obs})", f"{cal.chi_square:.3f}", str(cal.df),
+                 p_value(cal.p_value), unit(cal.rmsea), unit(cal.cfi)]]
+        values = [["Calibration fit", rep.calibration_result.n_obs, cal.chi_square, cal.df, cal.p_value, cal.rmsea, cal.cfi]]
+        flagged = [0] if not rep.calibration_result.admissible else []
+        if rep.loose.fit is not None and rep.loose.converged:
+            f = rep.loose.fit
+            rows.append([f"Loose: same model refitted (N = {rep.loose.n_obs})", f"{f.chi_square:.3f}", str(f.df),
+                         p_value(f.p_value), unit(f.rmsea), unit(f.cfi)])
+            values.append(["Loose: same model refitted", rep.loose.n_obs, f.chi_square, f.df, f.p_value, f.rmsea, f.cfi])
+            if not rep.loose.admissible:
+                flagged.append(1)
+        else:
+            rows.append(["Loose: same model refitted", "did not converge", "", "", "", ""])
+            values.append(["Loose: same model refitted (did not converge)", rep.loose.n_obs, None, None, None, None, None])
+        rows.append(["Tight: all calibration estimates fixed", f"{rep.tight_chi_square:.3f}", str(rep.tight_df),
+                     p_value(rep.tight_p_value), unit(rep.tight_rmsea), ""])
+        values.append(["Tight: all calibration estimates fixed", rep.loose.n_obs, rep.tight_chi_square, rep.tight_df,
+                       rep.tight_p_value, rep.tight_rmsea, None])
+        tables.append(_table(f"replication_{k + 1}", f"Calibrated on {rep.calibration}, validated on {rep.validation}",
+                             [("Check", "l"), ("Chi-square", "r"), ("df", "r"), ("p", "r"), ("RMSEA", "r"), ("CFI", "r")],
+                             rows, f"Cross-validation index (Cudeck & Browne 1983): {rep.cvi:.4f}; saturated model: "
+                                   f"{rep.cvi_saturated:.4f} (smaller is better).", tuple(flagged),
+                             values=(["Check", "N", "Chi-square", "df", "p", "RMSEA", "CFI"], values)))
+    title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
+    return Report(ResultKind.REPLICATE, title, _notice(problems), (), tuple(tables), tuple(notes),
+                  (GUIDE_NOTE, HIGH_STAKES_NOTE))
+
+
+# ---------------------------------------------------------------- bootstrap
+
+SCALE_WORDS = {"standardized": "std.", "unstandardized": "unstd."}  # short words for a narrow column
+
+def bootstrap_report(boot) -> Report:
+    result = boot.fit
+    lines = [f"{boot.replications} resamples of {result.n_obs} rows (seed {boot.seed}); {boot.converged} converged, "
+             f"{boot.replications - boot.converged} did not and are left out of the intervals."]
+    if boot.bollen_stine_p is not None:
+        lines.append(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
+                     f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_value(result.fit.p_value)}).")
+    def shown(value: float, scale: str) -> str:  # a standardized value within [-1, 1] without its leading zero
+        return unit(value) if scale == "standardized" and not missing(value) and abs(value) <= 1 else num(value)
+
+    rows = [[f"{i.kind.replace('_', ' ')} {', '.join(i.variables)}", SCALE_WORDS.get(i.scale, i.scale),
+             shown(i.estimate, i.scale),
+             num(i.bootstrap_se), f"[{shown(i.percentile[0], i.scale)}, {shown(i.percentile[1], i.scale)}]",
+             f"[{shown(i.bca[0], i.scale)}, {shown(i.bca[1], i.scale)}]"] for i in boot.intervals]
+    values = [[i.kind, ", ".join(i.variables), i.scale, i.estimate, i.bootstrap_se, *i.percentile, *i.bca]
+              for i in boot.intervals]
+    table = _table("bootstrap_intervals", "Bootstrap intervals (95%)",
+                   [("Parameter", "l"), ("Scale", "l"), ("Estimate", "r"), ("Bootstrap SE", "r"), ("Percentile", "r"),
+                    ("BCa", "r")], rows,
+                   "Scale: std., standardized (every variable with variance 1); unstd., in the model's units. Percentile "
+                   "and bias-corrected and accelerated (BCa; Efron 1987) intervals from the converged resamples.",
+                   values=(["Kind", "Variables", "Scale", "Estimate", "Bootstrap SE", "Percentile lower",
+                            "Percentile upper", "BCa lower", "BCa upper"], values))
+    return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines), (table,),
+                  (), (HIGH_STAKES_NOTE,))
+
+
+# ---------------------------------------------------------------- cutoffs
+
+def cutoffs_report(cut) -> Report:
+    from cfa_tool.workflows.cutoffs import N_STEPS, SIZE_STEPS
+
+    result = cut.fit
+    rows, values = [], []
+    for c in cut.cutoffs:
+        if c.cutoff is None:
+            found = ([f"by N = {c.separating_n:,}"] if c.separating_n is not None else []) + (
+                [f"for a misspecification of {unit(c.separating_size, 2)} at this N"] if c.separating_size is not None else [])
+            reading = f"none at N = {cut.n_obs:,}" + ("; one exists " + ", or ".join(found) if found else
+                                                      "; none either at 16 times this N or 3 times the misspecification")
+        else:
+            reading = "beyond the cutoff: misfit at least that large is likely" if c.beyond else "within the cutoff"
+        rows.append([c.index.upper(), f"{100 * c.level:.0f}%", unit(c.cutoff) if c.cutoff is not None else "",
+                     unit(c.observed), reading])
+        values.append([c.index.upper(), c.level, c.cutoff, c.observed, reading])
+    notes = []
+    if any(c.cutoff is None for c in cut.cutoffs):
+        notes.append(f"Where no cutoff exists, these fit indices cannot tell this model from one with {cut.misspecification} "
+                     f"left out at this sample size: a good value of them is no evidence against that misspecification. "
+                     f"Look at the modification indices and residual correlations for it, or gather more data. The "
+                     f"sample sizes and sizes of misspecification quoted were found by simulating at "
+                     f"{', '.join(map(str, N_STEPS))} times this N and {', '.join(f'{s:g}' for s in SIZE_STEPS)} times "
+                     f"the misspecification, not by extrapolating.")
+    table = _table("cutoffs", "Cutoffs", [("Index", "l"), ("Level", "r"), ("Cutoff", "r"), ("This model", "r"),
+                                          ("Reading", "l")], rows,
+                   values=(["Index", "Level", "Cutoff", "This model", "Reading"], values))
+    lines = (f"{cut.replications} samples of N = {cut.n_obs} from the fitted model and from the model with "
+             f"{cut.misspecification} left out (seed {cut.seed}).",)
+    return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", _fit_notice(result), lines,
+                  (table,), tuple(notes), ("These cutoffs hold for this model, sample size and kind of misspecification "
+                                           "only; they are guides, not laws.", HIGH_STAKES_NOTE))
+
+
+# ---------------------------------------------------------------- power
+
+def power_report(result) -> Report:
+    rows = [["Test", f"{result.test} fit", result.test],
+            ["RMSEA under the null hypothesis", short(result.rmsea_null), result.rmsea_null],
+            ["RMSEA under the alternative", short(result.rmsea_alternative), result.rmsea_alternative],
+            ["Degrees of freedom", str(result.df), result.df],
+            ["Significance level", unit(result.alpha, 2), result.alpha]]
+    if result.power is not None:
+        rows.append([f"Power with N = {result.n_obs}", unit(result.power), result.power])
+    rows.append([f"Smallest N for power {unit(result.target_power, 2)}", str(result.required_n), result.required_n])
+    table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
+                   f"Note: {result.note}." if result.note else None,
+                   values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
+    return Report(ResultKind.POWER, "Power of the RMSEA test (MacCallum, Browne & Sugawara 1996)", None, (), (table,), (),
+                  ("RMSEA values of close and not-close fit are conventions, not laws.",))
+
+
+# ---------------------------------------------------------------- power-simulation
+
+def _percent(share: float) -> str:
+    return "" if share != share else f"{100 * share:+.1f}"
+
+
+def montecarlo_report(result) -> Report:
+    lines = [f"{result.converged} of {result.replications} replications converged "
+             f"({100 * result.converged / result.replications:.1f}%)."]
+    if result.defaulted:
+        lines.append("Population values not given in the model file took defaults: " + ", ".join(result.defaulted))
+    # what decides the plan first: power, then whether intervals and estimates can be trusted at this N
+    rows = [[p.label, unit(p.power, 2), f"{100 * p.coverage:.1f}%", _percent(p.relative_bias), _percent(p.se_bias)]
+            for p in result.parameters]
+    values = [[p.label, p.power, p.coverage, p.relative_bias, p.se_bias] for p in result.parameters]
+    table = _table("parameters", "Per parameter", [("Parameter", "l"), ("Power", "r"), ("Coverage", "r"),
+                                                   ("Estimate bias %", "r"), ("SE bias %", "r")], rows,
+                   f"Power: share of replications in which the parameter differs from zero at alpha {unit(result.alpha, 2)}; "
+                   f"coverage: share of 95% Wald intervals that hold the population value (nominal 95%); bias: mean "
+                   f"estimate (or mean SE) against the population value (or the SD of the estimates). Population values, "
+                   f"mean estimates and SDs are in the JSON (--json).",
+                   values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
+    return Report(ResultKind.POWER_SIMULATION,
+                  f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
+                  None, tuple(lines), (table,))
+
+
+# ---------------------------------------------------------------- simulate
+
+def population_report(simulated) -> Report:
+    """The population a simulation drew from: each free parameter, in the model's units and standardized, and
+    whether the model file gave it or it took the default."""
+    population = simulated.population
+    if population.fitted_from is not None:
+        line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}. The data follow the "
+                f"fitted model exactly, so they carry none of that model's misfit to the data it was fitted to.")
+    else:
+        line = ("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances "
+                "1) and converted to the model's scaling; values from 'start' and 'fix' statements replace them.")
+    frame = simulated.frame
+    made = (f"{len(frame)} rows of {frame.shape[1]} variables (seed {simulated.seed})"
+            + (f", ordinal with {simulated.categories} categories" if simulated.categories else "")
+            + (f", {100 * simulated.missing:g}% of answers removed completely at random" if simulated.missing else "") + ".")
+    source = "earlier fit" if population.fitted_from is not None else "model file"
+    entries = population.values()
+    rows = [[f"{v['kind'].replace('_', ' ')} {', '.join(v['variables'])}", num(v["value"]), num(v["standardized"]),
+             "default" if v["default"] else source] for v in entries]
+    values = [[v["kind"], ", ".join(v["variables"]), v["value"], v["standardized"], "default" if v["default"] else source]
+              for v in entries]
+    table = _table("population", "Population values used", [("Parameter", "l"), ("Value", "r"), ("Standardized", "r"),
+                                                             ("From", "l")], rows,
+                   values=(["Kind", "Variables", "Value", "Standardized", "From"], values))
+    return Report(ResultKind.SIMULATE, "Simulated data", None, (made, line), (table,))
+
+
+# ---------------------------------------------------------------- check
+
+def check_report(found) -> Report:
+    from cfa_tool.pipeline.results import _percent_below_all
+
+    lines = found.summary().splitlines()
+    rows = [[name, "100%" if share >= 1 else _percent_below_all(share)] for name, share in found.coverage.items()]
+    table = _table("coverage", "Share of rows answering each model variable", [("Variable", "l"), ("Answered", "r")],
+                   rows, values=(["Variable", "Share answering"], [[k, v] for k, v in found.coverage.items()]))
+    return Report(ResultKind.CHECK, "Model check", None, tuple(lines), (table,))
+
+
+BUILDERS = {ResultKind.COMPARE: comparison_report, ResultKind.INVARIANCE: invariance_report,
+            ResultKind.REPLICATE: replication_report, ResultKind.BOOTSTRAP: bootstrap_report,
+            ResultKind.CUTOFFS: cutoffs_report, ResultKind.POWER: power_report,
+            ResultKind.POWER_SIMULATION: montecarlo_report, ResultKind.SIMULATE: population_report,
+            ResultKind.CHECK: check_report}
+
