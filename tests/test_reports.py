@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import re
 import shutil
+import io
 import subprocess
 import tempfile
 from pathlib import Path
@@ -278,3 +279,19 @@ def test_every_csv_table_of_a_fit_holds_full_precision_numbers(demo_result):
     if distinct is not None:
         frame = pd.read_csv(pd.io.common.StringIO(csv_table(distinct)))
         assert pd.api.types.is_float_dtype(frame["AVE (first)"])
+
+
+def test_a_narrow_tables_title_and_note_wrap_at_the_terminal_width_not_the_tables():
+    # found in use: a two-column table's note came out as a column of a few words per line
+    from cfa_tool.reporting.tables import ReportTable
+    from cfa_tool.reporting.terminal import SafeConsole, rich_table
+
+    note = "A note long enough to need two lines at eighty columns, " * 2 + "which a narrow table must not squeeze."
+    table = ReportTable("narrow", "A title longer than the two narrow columns of its table below it", ("A", "B"),
+                        ("l", "r"), (("1", "2"),), note=note)
+    console = SafeConsole(width=80, record=True, no_color=True, file=io.StringIO())
+    console.print(rich_table(table))
+    lines = console.export_text().splitlines()
+    assert "A title longer than the two narrow columns of its table below it" in lines
+    note_lines = [line for line in lines if line.startswith(("A note", "lines", "which"))]
+    assert len(note_lines) <= 3 and max(len(line) for line in lines) <= 80

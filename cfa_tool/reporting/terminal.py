@@ -5,7 +5,7 @@ from __future__ import annotations
 import io
 
 from rich import box
-from rich.console import Console
+from rich.console import Console, Group
 from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
@@ -38,18 +38,20 @@ def _table(title: str, columns: list[tuple[str, str]]) -> Table:
     return table
 
 
-def rich_table(report: ReportTable) -> Table:
-    table = _table(report.title, [(c, "left" if a == "l" else "right") for c, a in zip(report.columns, report.align)])
+def rich_table(report: ReportTable) -> Group:
+    """The table with its title above and its note below, both wrapped at the terminal's width (as part of
+    the table they would wrap at the table's width, a narrow column of words under a narrow table)."""
+    table = _table("", [(c, "left" if a == "l" else "right") for c, a in zip(report.columns, report.align)])
     for column in table.columns:
         column.overflow = "fold"  # a narrow terminal wraps a long word; it never cuts one short
     faint = set(report.faint)
     for k, row in enumerate(report.rows):
-        cells = [Text(v, style="dim") if (k, j) in faint else v for j, v in enumerate(row)]
+        cells = [Text(printable(v), style="dim") if (k, j) in faint else v for j, v in enumerate(row)]
         table.add_row(*cells, style="bold red" if k in report.flagged else None)
+    parts = [Text(printable(report.title), style="bold"), table]  # (Text is not escaped by SafeConsole.render_str)
     if report.note and report.key not in ("fit",):
-        table.caption = report.note
-        table.caption_justify = "left"
-    return table
+        parts += [Text(printable(report.note, keep_newlines=True), style="dim"), Text("")]
+    return Group(*parts)
 
 
 def problem_panel(notice: T.ProblemNotice) -> Panel:
