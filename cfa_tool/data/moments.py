@@ -29,6 +29,7 @@ class SampleMoments:
     group: str | None = None  # 'label of column' for one group of a multi-group data set
     rows: np.ndarray | None = field(default=None, repr=False, compare=False)  # the complete rows analysed
     row_numbers: np.ndarray | None = field(default=None, repr=False, compare=False)  # their data-row numbers (1-based)
+    design: object | None = field(default=None, repr=False, compare=False)  # data.sample_design.RowDesign of the rows
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:

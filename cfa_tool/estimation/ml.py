@@ -34,16 +34,18 @@ class GroupMoments:
     mean: np.ndarray
     n_obs: int
     rows: np.ndarray | None = None  # raw complete rows, when robust statistics are wanted
+    design: object | None = None  # data.sample_design.RowDesign of the rows (weights, clusters, strata), if any
 
 
 def group_moments(moments, observed: tuple[str, ...]) -> GroupMoments:
     """One group's :class:`~cfa_tool.data.moments.SampleMoments` as the estimator needs them: the
     model's variables in the model's order."""
     if tuple(moments.names) == tuple(observed):
-        return GroupMoments(moments.covariance, moments.means, moments.n_obs, moments.rows)
+        return GroupMoments(moments.covariance, moments.means, moments.n_obs, moments.rows, moments.design)
     order = [moments.names.index(n) for n in observed]
     rows = moments.rows[:, order] if moments.rows is not None else None
-    return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs, rows)
+    return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs, rows,
+                        moments.design)
 
 
 class NormalParts:

@@ -26,7 +26,7 @@ from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments
 from cfa_tool.errors import CfaError, OptionError
 from cfa_tool.estimation.fiml import MissingDataLikelihood, fiml_baseline, fiml_log_likelihood
-from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
+from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments, group_moments
 from cfa_tool.data.patterns import pattern_data
 from cfa_tool.estimation.strategy import Alternative, search
 from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
@@ -102,12 +102,7 @@ class Estimation:
     message: str
 
 
-def ordered_moments(moments: SampleMoments, observed: tuple[str, ...]) -> GroupMoments:
-    if tuple(moments.names) == tuple(observed):
-        return GroupMoments(moments.covariance, moments.means, moments.n_obs, moments.rows)
-    order = [moments.names.index(n) for n in observed]
-    rows = moments.rows[:, order] if moments.rows is not None else None
-    return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs, rows)
+ordered_moments = group_moments
 
 
 def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options: FitOptions = FitOptions(),
@@ -119,9 +114,9 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     table, model = model_structure(spec, labels, fiml)
     moments = [ordered_moments(m, table.observed) for _, m in groups]
     if fiml:
-        patterns = [pattern_data(gm.rows) for gm in moments]
+        patterns = [pattern_data(gm.rows, gm.design.weights if gm.design is not None else None) for gm in moments]
         saturated = [(gm.mean, gm.covariance) for gm in moments]
-        summaries = [GroupMoments(gm.covariance, gm.mean, gm.n_obs) for gm in moments]
+        summaries = [GroupMoments(gm.covariance, gm.mean, gm.n_obs, design=gm.design) for gm in moments]
 
     def likelihood_of(model: StructuredModel) -> NormalLikelihood | MissingDataLikelihood:
         if fiml:

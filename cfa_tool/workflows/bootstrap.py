@@ -145,7 +145,7 @@ def bollen_stine_rows(rows: np.ndarray, sigma: np.ndarray) -> np.ndarray:
 
 
 def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int = 1000, seed: int = 1,
-                  bollen_stine: bool = True, bca: bool = True, workers: int | None = None, cluster: str | None = None,
+                  bollen_stine: bool = True, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
                   progress=None) -> BootstrapResult:
     """Bootstrap a converged single-group fit of complete ``rows`` (columns in the model's order)."""
     if result.multigroup:
@@ -158,7 +158,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     start = result.theta
     seeds = np.random.SeedSequence(seed).generate_state(2 * replications)
     tasks = [(spec, moments_rows, names, int(s), start) for s in seeds[:replications]]
-    draws = run_tasks(_replicate, tasks, workers, cluster, progress)
+    draws = run_tasks(_replicate, tasks, workers, scheduler, progress)
     ok = [d for d in draws if d[0]]
     if len(ok) < 2:
         raise EstimationError(f"{len(ok)} of {replications} bootstrap resamples could be fitted, too few for intervals; "
@@ -188,7 +188,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     if bollen_stine:
         transformed = bollen_stine_rows(moments_rows, result.implied_covariance)
         btasks = [(spec, transformed, names, int(s), start) for s in seeds[replications:]]
-        bdraws = [d for d in run_tasks(_replicate, btasks, workers, cluster, progress) if d[0]]
+        bdraws = [d for d in run_tasks(_replicate, btasks, workers, scheduler, progress) if d[0]]
         converged_bs = len(bdraws)
         if bdraws:
             p_bs = float(np.mean([d[3] >= result.fit.chi_square for d in bdraws]))
@@ -215,7 +215,7 @@ def _bca(draws: np.ndarray, point: float, a: float, level: float = 0.95) -> tupl
 
 
 def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 1000, seed: int = 1,
-              bollen_stine: bool = True, bca: bool = True, workers: int | None = None, cluster: str | None = None,
+              bollen_stine: bool = True, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
               progress=None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               keep: tuple[str, ...] | list[str] = ()):
     """Fit the model, then bootstrap it: returns (FitResult, BootstrapResult)."""
@@ -225,5 +225,5 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     moments = sample_moments(frame, spec.observed_names, source)
     result = converged(fit_moments(spec, moments, FitOptions()))
     order = [moments.names.index(n) for n in result.observed]
-    boot = bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, cluster, progress)
+    boot = bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, scheduler, progress)
     return result, boot
