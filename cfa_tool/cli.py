@@ -75,6 +75,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_group_options(compare, required=False)
     _add_test_option(compare)
     _add_ordinal_options(compare)
+    _add_design_options(compare)
     _add_json_option(compare)
 
     inv = sub.add_parser("invariance", help="test configural, metric, scalar and strict invariance across groups")
@@ -338,7 +339,8 @@ def _run(args: argparse.Namespace) -> int:
 
         result = compare(args.models, args.data, group=args.group, reference_group=args.reference_group, test=args.test,
                          sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
-                         ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
+                         ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
+                         **_design_args(args))
         return _emit(args, result, render_comparison)
     if args.command == "invariance":
         from cfa_tool.reporting.workflow_text import render_invariance

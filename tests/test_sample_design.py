@@ -289,3 +289,18 @@ def test_scheduler_is_the_option_of_the_dask_address(tmp_path, capsys):
     assert args.scheduler == "tcp://host:8786"
     with pytest.raises(SystemExit):
         build_parser().parse_args(["bootstrap", "m.cfa", "--data", "d.csv", "--cluster", "tcp://host:8786"])
+
+
+def test_compare_under_the_design(hs_data):
+    # compare honours the design: with a constant sampling weight every difference test (likelihood ratio and
+    # the scaled ones of Satorra & Bentler 2001 and 2010) is that of the unweighted data with the robust test.
+    from cfa_tool.workflows.compare import compare
+
+    one = "factor g: x1, x2, x3, x4, x5, x6, x7, x8, x9\n"
+    plain = compare([THREE_FACTORS, one], hs_data, test="satorra-bentler")
+    weighted = compare([THREE_FACTORS, one], hs_data.assign(w=2.0), weights="w")
+    assert len(weighted.tests) == len(plain.tests) > 1
+    for a, b in zip(weighted.tests, plain.tests):
+        assert a.method == b.method
+        assert a.chi_square_difference == pytest.approx(b.chi_square_difference, rel=1e-9)
+    assert all(r.design is not None for r in weighted.results)

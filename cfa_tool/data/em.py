@@ -15,7 +15,8 @@ from cfa_tool.errors import EstimationError
 from cfa_tool.data.patterns import PatternData
 
 
-def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float = 1e-10) -> tuple[np.ndarray, np.ndarray, int]:
+def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float = 1e-10,
+                 start: tuple[np.ndarray, np.ndarray] | None = None) -> tuple[np.ndarray, np.ndarray, int]:
     """(mean, covariance with divisor N, iterations) of the unrestricted normal model; with row weights
     (``data.weights``) every mean and sum of the M-step is weighted (divisor the sum of the weights)."""
     rows = data.rows
@@ -25,6 +26,8 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
     n, p = rows.shape
     mu, var = weighted_available_moments(rows, w)
     sigma = np.diag(np.where(var > 0, var, 1.0))
+    if start is not None:  # e.g. the unweighted estimates, near the weighted ones
+        mu, sigma = start
     n_missing = p - mask.sum(axis=1)
     # rows grouped by how many answers they miss, with the columns they miss
     groups = []

@@ -241,7 +241,7 @@ def weighted_moments(moments, design: RowDesign):
         from cfa_tool.data.em import em_saturated
         from cfa_tool.data.patterns import pattern_data
 
-        mean, cov, _ = em_saturated(pattern_data(rows, w))
+        mean, cov, _ = em_saturated(pattern_data(rows, w), start=(moments.means, moments.covariance))
     else:
         mean = w @ rows / w.sum()
         centred = rows - mean
