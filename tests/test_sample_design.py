@@ -95,7 +95,8 @@ def _hand_sandwich(result, X: np.ndarray, w: np.ndarray, clusters: np.ndarray | 
     1/2 [tr(S^-1 D_k S^-1 r r') - tr(S^-1 D_k)] in parameter k with D_k = dSigma/dtheta_k, and expected
     information 1/2 tr(S^-1 D_k S^-1 D_l) per row (e.g. Bollen 1989, ch. 4).  Cov = A^-1 B A^-1 / N with
     B = (1/N) sum_i (w_i s_i)(w_i s_i)' for sampling weights rescaled to sum to N, or the cluster sums
-    with the factor C/(C-1) (Cameron & Miller 2015, eq. 11; statsmodels' S_crosssection forms the sums)."""
+    with the factor C/(C-1) (Cameron & Miller 2015; equation number not given, recalled from memory;
+    statsmodels' S_crosssection forms the cluster sums independently of the project)."""
     est = _by_row(result)
     lam = np.array([1.0] + [est[("loading", ("f", f"x{j}"))] for j in (2, 3, 4)])
     phi = est[("factor_variance", ("f",))]
@@ -147,7 +148,7 @@ def test_sandwich_matches_a_hand_written_score(hs_data, clustered):
 def test_one_row_per_cluster_is_the_ordinary_sandwich(hs_data):
     # With every row its own cluster the cluster sums are the rows' contributions, so the cluster-robust
     # variances are the ordinary sandwich ones times the small-sample factor C/(C-1), C = N
-    # (Cameron & Miller 2015, sec. IIC).
+    # (Cameron & Miller 2015, their section on the small-cluster correction; recalled from memory).
     plain = cfa_tool.fit(THREE_FACTORS, hs_data, test="satorra-bentler")
     clustered = cfa_tool.fit(THREE_FACTORS, hs_data.assign(unit=np.arange(len(hs_data))), cluster="unit")
     n = len(hs_data)
@@ -157,7 +158,8 @@ def test_one_row_per_cluster_is_the_ordinary_sandwich(hs_data):
 
 
 def test_strata_centre_the_cluster_sums(hs_data):
-    # With strata each stratum's cluster sums are centred at their own mean (Wolter 2007, ch. 6); checked
+    # With strata each stratum's cluster sums are centred at their own mean (Wolter 2007, linearization; recalled
+    # from memory); checked
     # against the formula written out with statsmodels' cluster sums, stratum by stratum.
     from cfa_tool.data.sample_design import RowDesign
     from cfa_tool.inference.design import design_meat

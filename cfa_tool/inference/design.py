@@ -9,7 +9,7 @@ and weights w_i that sum to N, the covariance of the weighted mean of the s_i is
 * sum_h C_h/(C_h - 1) sum_{c in h} (z_c - zbar_h)(z_c - zbar_h)',  z_c = sum_{i in c} w_i s_i,
   with clusters c in strata h (one stratum when none is given; each row its own cluster when
   strata come without clusters): the linearization estimator of survey statistics
-  (Binder 1983; Wolter 2007, ch. 6), zbar_h the mean of the stratum's cluster sums.
+  (Binder 1983; Wolter 2007, on linearization), zbar_h the mean of the stratum's cluster sums.
 
 Without a design every row weighs one and the first form is the ordinary (1/N) sum s_i s_i'.
 """
