@@ -15,8 +15,7 @@ from cfa_tool.errors import EstimationError
 from cfa_tool.data.patterns import PatternData
 
 
-def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float = 1e-10,
-                 start: tuple[np.ndarray, np.ndarray] | None = None) -> tuple[np.ndarray, np.ndarray, int]:
+def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float = 1e-10) -> tuple[np.ndarray, np.ndarray, int]:
     """(mean, covariance with divisor N, iterations) of the unrestricted normal model; with row weights
     (``data.weights``) every mean and sum of the M-step is weighted (divisor the sum of the weights)."""
     rows = data.rows
@@ -26,8 +25,6 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
     n, p = rows.shape
     mu, var = weighted_available_moments(rows, w)
     sigma = np.diag(np.where(var > 0, var, 1.0))
-    if start is not None:  # e.g. the unweighted estimates, near the weighted ones
-        mu, sigma = start
     n_missing = p - mask.sum(axis=1)
     # rows grouped by how many answers they miss, with the columns they miss
     groups = []
@@ -35,18 +32,19 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
         if m == 0:
             continue
         which = np.flatnonzero(n_missing == m)
-        groups.append((which, np.nonzero(~mask[which])[1].reshape(len(which), m)))
+        miss = np.nonzero(~mask[which])[1].reshape(len(which), m)
+        groups.append((which, miss, (miss[:, :, None] * p + miss[:, None, :]).ravel()))  # cells of Sigma, flat
     for iteration in range(1, max_iterations + 1):
         precision = np.linalg.inv(sigma)
         dev = np.where(mask, rows - mu, 0.0)
         completed = mu + dev
         extra = np.zeros((p, p))
-        for which, miss in groups:
+        for which, miss, cells in groups:
             block = precision[miss[:, :, None], miss[:, None, :]]  # L_mm of each row
             cond = np.linalg.inv(block)  # covariance of the missing part given the observed part
             side = np.einsum("rkp,rp->rk", precision[miss], dev[which])  # L_mo (x_o - mu_o)
             completed[which[:, None], miss] = mu[miss] - np.einsum("rkj,rj->rk", cond, side)
-            np.add.at(extra, (miss[:, :, None], miss[:, None, :]), cond * w[which, None, None])
+            extra += np.bincount(cells, (cond * w[which, None, None]).ravel(), p * p).reshape(p, p)
         new_mu = w @ completed / total
         centred = completed - new_mu
         new_sigma = ((centred * w[:, None]).T @ centred + extra) / total

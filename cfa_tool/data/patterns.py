@@ -63,12 +63,12 @@ def pattern_data(rows: np.ndarray, weights: np.ndarray | None = None) -> Pattern
     if weights is not None:
         counts = np.bincount(index, weights=weights, minlength=P)
     w = np.ones(len(rows)) if weights is None else weights
-    sums = np.zeros((P, p))
-    np.add.at(sums, index, filled * w[:, None])
-    means = sums / counts[:, None]
-    centred = np.where(mask, filled - means[index], 0.0)
-    scatter = np.zeros((P, p, p))
-    np.add.at(scatter, index, (centred * w[:, None])[:, :, None] * centred[:, None, :])
+    # sums over the rows of each pattern: rows sorted by pattern, each pattern's run added up at once
+    order = np.argsort(index, kind="stable")
+    starts = np.searchsorted(index[order], np.arange(P))
+    means = np.add.reduceat((filled * w[:, None])[order], starts, axis=0) / counts[:, None]
+    centred = np.where(mask, filled - means[index], 0.0)[order]
+    scatter = np.add.reduceat((centred * w[order, None])[:, :, None] * centred[:, None, :], starts, axis=0)
     scatter /= counts[:, None, None]
     return PatternData(patterns, counts, means, scatter, index, rows, weights)
 

@@ -230,25 +230,11 @@ def kept_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, missing)
     return answered.all(axis=1)
 
 
-def weighted_moments(moments, design: RowDesign):
-    """``moments`` (SampleMoments of the same rows) with weighted means and covariance (divisor the sum
-    of the weights), or weighted EM estimates with missing answers, and the design attached."""
-    from cfa_tool.data.moments import _check_moments as check_moments
-
-    rows = moments.rows
-    w = design.weights
-    if np.isnan(rows).any():
-        from cfa_tool.data.em import em_saturated
-        from cfa_tool.data.patterns import pattern_data
-
-        mean, cov, _ = em_saturated(pattern_data(rows, w), start=(moments.means, moments.covariance))
-    else:
-        mean = w @ rows / w.sum()
-        centred = rows - mean
-        cov = (centred * w[:, None]).T @ centred / w.sum()
-    check_moments(cov, mean, moments.names, moments.source)
+def with_row_design(moments, design: RowDesign):
+    """``moments`` (SampleMoments of the same rows, already weighted by :func:`cfa_tool.data.moments.sample_moments`)
+    with the design attached; with frequency weights N is the sum of the weights."""
     n_obs = int(round(design.total)) if design.kind is WeightKind.FREQUENCY else moments.n_obs
-    return replace(moments, covariance=cov, means=mean, n_obs=n_obs, design=design)
+    return replace(moments, n_obs=n_obs, design=design)
 
 
 def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list) -> SampleDesign:
@@ -266,7 +252,7 @@ def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list) -
 
 def apply_design(groups: list, frame: pd.DataFrame, group_column: str | None, names: tuple[str, ...], source: str,
                  columns: DesignColumns, missing) -> list:
-    """Each group's (label, SampleMoments) weighted by the design of its rows."""
+    """Each group's (label, SampleMoments) with the design of its rows attached."""
     from cfa_tool.data.labels import label_text
 
     out = []
@@ -276,5 +262,5 @@ def apply_design(groups: list, frame: pd.DataFrame, group_column: str | None, na
             keys = frame[group_column].map(lambda v: None if pd.isna(v) else label_text(v))
             part = frame.loc[(keys == label).to_numpy()]
         kept = kept_rows(part, names, source, missing)
-        out.append((label, weighted_moments(moments, row_design(part, columns, kept))))
+        out.append((label, with_row_design(moments, row_design(part, columns, kept))))
     return out

@@ -22,7 +22,7 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.data.em import weighted_available_moments
-from cfa_tool.estimation.fiml import MissingDataLikelihood, MissingParts
+from cfa_tool.estimation.fiml import MissingDataLikelihood, MissingParts, _trace_weights
 from cfa_tool.inference.design import design_meat
 from cfa_tool.numerics.linalg import scaled_inverse
 from cfa_tool.data.patterns import PatternData, embedded_inverse
@@ -48,17 +48,15 @@ def moment_scores(data: PatternData, mu: np.ndarray, sigma: np.ndarray) -> tuple
     rows = data.rows
     observed = ~np.isnan(rows)
     resid = np.where(observed, rows - mu, 0.0)
-    A = A_patterns[data.index]
-    u = np.einsum("rij,rj->ri", A, resid)
-    M = A - u[:, :, None] * u[:, None, :]
+    u = np.einsum("rij,rj->ri", A_patterns[data.index], resid)
     I, J = vech_indices(len(mu))
     scale = np.where(I == J, 1.0, 2.0)
-    scores = np.hstack([-2.0 * u, M[:, I, J] * scale])
+    # (A_i - u_i u_i') in vech order, without forming every row's p x p matrix
+    scores = np.hstack([-2.0 * u, (A_patterns[:, I, J][data.index] - u[:, I] * u[:, J]) * scale])
     w = data.counts / data.counts.sum()
-    P, p, _ = A_patterns.shape
-    flat = A_patterns.reshape(P, p * p)
-    G = ((flat * w[:, None]).T @ flat).reshape(p, p, p, p).transpose(1, 2, 0, 3).reshape(p * p, p * p)
-    parts = MissingParts(np.zeros((p, p)), np.zeros(p), G, np.tensordot(w, A_patterns, axes=1))
+    p = A_patterns.shape[1]
+    parts = MissingParts(np.zeros((p, p)), np.zeros(p), _trace_weights(A_patterns, A_patterns, w),
+                         np.tensordot(w, A_patterns, axes=1))
     return scores, parts
 
 

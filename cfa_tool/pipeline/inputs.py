@@ -20,6 +20,7 @@ from cfa_tool.data.sample_design import DesignColumns, apply_design, check_desig
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
 from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
+from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
@@ -157,13 +158,14 @@ def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None 
     """Per-group (or single) sample moments of the model variables, with notes on rows left out;
     weighted, and carrying each row's weight, cluster and stratum, under a sampling ``design``."""
     notes: list[str] = []
+    weights = design.weights if design is not None else None
     if group is None:
         if reference_group is not None:
             raise OptionError("a reference group needs a group column")
-        groups = [(None, sample_moments(frame, spec.observed_names, source, missing=missing))]
+        groups = [(None, sample_moments(frame, spec.observed_names, source, missing=missing, weights=weights))]
     else:
         _check_group_column(spec, group)
-        groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing)
+        groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing, weights)
         notes = _no_group_notes(no_group, group) + label_notes(frame, group)
     if design is not None:
         groups = apply_design(groups, frame, group, spec.observed_names, source, design, missing)
@@ -307,7 +309,8 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
     notes = missing_notes + notes
     if design is not None:
         fit_options = design_test(fit_options, design)
-    groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design)
+    with blas_threads_for(len(spec.observed_names)):  # EM on thousands of rows: one thread beats several on small p
+        groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design)
     notes += group_notes
     result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     if design is not None:
