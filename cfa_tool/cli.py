@@ -90,6 +90,7 @@ def build_parser() -> argparse.ArgumentParser:
                      help="how each step is judged: the chi-square difference test (default), the change in CFI, RMSEA "
                           "and SRMR against common-practice guides, or both")
     _add_ordinal_options(inv)
+    _add_design_options(inv)
     _add_json_option(inv)
 
     rep = sub.add_parser("replicate", help="check that a model replicates in new data (or in random halves of one data set)")
@@ -349,7 +350,8 @@ def _run(args: argparse.Namespace) -> int:
         result = invariance(args.model, args.data, args.group, reference_group=args.reference_group,
                             partial=args.partial, alpha=args.alpha, decide_by=args.decide_by, sheet=args.sheet,
                             missing_codes=args.missing_codes,
-                            keep=args.keep, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
+                            keep=args.keep, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
+                            **_design_args(args))
         return _emit(args, result, render_invariance)
     if args.command == "replicate":
         return _replicate(args)

@@ -306,3 +306,23 @@ def test_compare_under_the_design(hs_data):
         assert a.method == b.method
         assert a.chi_square_difference == pytest.approx(b.chi_square_difference, rel=1e-9)
     assert all(r.design is not None for r in weighted.results)
+
+
+def test_invariance_under_the_design(hs_data):
+    # The invariance ladder honours the design: with a constant sampling weight every step's scaled
+    # statistic and difference test is that of the unweighted data with the robust test; with unequal
+    # weights and clusters the steps state the design.
+    from cfa_tool.workflows.invariance import invariance
+
+    plain = invariance(THREE_FACTORS, hs_data, "school", test="satorra-bentler")
+    weighted = invariance(THREE_FACTORS, hs_data.assign(w=2.0), "school", weights="w")
+    assert len(weighted.steps) == len(plain.steps)
+    for a, b in zip(weighted.steps, plain.steps):
+        assert a.result.robust.chi_square_scaled == pytest.approx(b.result.robust.chi_square_scaled, rel=1e-8)
+        if b.versus_previous is not None:
+            assert a.versus_previous.chi_square_difference == pytest.approx(b.versus_previous.chi_square_difference,
+                                                                            rel=1e-8)
+    w = np.random.default_rng(4).uniform(0.5, 2.0, len(hs_data))
+    design = invariance(THREE_FACTORS, hs_data.assign(w=w, unit=np.arange(len(hs_data)) // 6), "school",
+                        weights="w", cluster="unit")
+    assert all(step.result.design is not None and step.result.design.clusters == 51 for step in design.steps)
