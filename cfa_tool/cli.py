@@ -103,6 +103,7 @@ def build_parser() -> argparse.ArgumentParser:
 
     _add_resampling_command(sub, "bootstrap", "bootstrap intervals and the Bollen-Stine p-value of a fit", 1000,
                             "number of resamples")
+    _add_design_options(sub.choices["bootstrap"])
 
     power = sub.add_parser("power", help="power and sample size of RMSEA tests of fit")
     power.add_argument("model", metavar="MODEL", nargs="?", help="model file (gives the degrees of freedom)")
@@ -432,7 +433,7 @@ def _simulation_command(args: argparse.Namespace) -> int:
 
             result = _Pair(bootstrap(args.model, args.data, args.replications, args.seed, workers=args.workers,
                                      scheduler=args.scheduler, progress=advance, sheet=args.sheet,
-                                     missing_codes=args.missing_codes, keep=args.keep))
+                                     missing_codes=args.missing_codes, keep=args.keep, **_design_args(args)))
             render = W.render_bootstrap
         else:
             from cfa_tool.workflows.cutoffs import cutoffs

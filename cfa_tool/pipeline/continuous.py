@@ -414,7 +414,16 @@ def _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_w
     return ReplicateFit(True, est.theta, values, std, se, chi, cfi, rmsea, srmr_)
 
 
-def moments_from_rows(rows: np.ndarray, names: tuple[str, ...], source: str = "<replication>") -> SampleMoments:
-    mean = rows.mean(axis=0)
+def moments_from_rows(rows: np.ndarray, names: tuple[str, ...], source: str = "<replication>",
+                      weights: np.ndarray | None = None, n_obs: int | None = None) -> SampleMoments:
+    """Moments of complete ``rows``; with ``weights`` the weighted means and covariance (divisor the sum of
+    the weights) and ``n_obs`` the N of the test statistic (default the number of rows)."""
+    n = len(rows) if n_obs is None else n_obs
+    if weights is None:
+        mean = rows.mean(axis=0)
+        dev = rows - mean
+        return SampleMoments(tuple(names), dev.T @ dev / len(rows), mean, n, len(rows), 0, source, None, rows)
+    mean = weights @ rows / weights.sum()
     dev = rows - mean
-    return SampleMoments(tuple(names), dev.T @ dev / len(rows), mean, len(rows), len(rows), 0, source, None, rows)
+    cov = (dev * weights[:, None]).T @ dev / weights.sum()
+    return SampleMoments(tuple(names), cov, mean, n, len(rows), 0, source, None, rows)
