@@ -359,3 +359,11 @@ def test_cluster_bootstrap_agrees_with_the_cluster_sandwich():
     sandwich = _by_row(result, "se")[key]
     assert boot_se == pytest.approx(sandwich, rel=0.25)
     assert _by_row(naive, "se")[key] < 0.75 * sandwich
+
+
+def test_a_cluster_across_groups_is_an_error(hs_data):
+    from cfa_tool.errors import DataError
+
+    data = hs_data.assign(unit=np.arange(len(hs_data)) % 20)  # every unit has rows in both schools
+    with pytest.raises(DataError, match="has rows in more than one group of 'school'"):
+        cfa_tool.fit(THREE_FACTORS, data, group="school", cluster="unit")

@@ -168,6 +168,14 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             cluster = pairs[columns.cluster][shared.to_numpy()].iloc[0]
             raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' lies in "
                             f"more than one stratum of '{printable(columns.strata)}'; clusters must be nested in strata")
+    if columns.cluster is not None and group is not None:
+        pairs = frame.loc[frame[group].notna(), [columns.cluster, group]].astype(str).drop_duplicates()
+        shared = pairs[columns.cluster].duplicated()
+        if shared.any():
+            cluster = pairs[columns.cluster][shared.to_numpy()].iloc[0]
+            raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
+                            f"more than one group of '{printable(group)}'; the groups are fitted as independent samples, "
+                            f"so every cluster must lie within one group")
     if columns.strata is not None:
         units = frame[columns.cluster].astype(str) if columns.cluster is not None else pd.Series(np.arange(len(frame)),
                                                                                                  index=frame.index)
