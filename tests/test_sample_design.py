@@ -244,6 +244,8 @@ def design_files(tmp_path, hs_data):
     (["--weight-kind", "frequency"], "no weights column"),
     (["--weights", "w", "--ordinal", "all"], "ordinal items are not yet fitted with a sampling design"),
     (["--weights", "w", "--information", "observed"], "information matrix cannot be chosen"),
+    (["--weights", "w", "--cluster", "w"], "the column 'w' is named for two parts of the design"),
+    (["--cluster", "unit", "--strata", "school"], "cluster '15' of column 'unit' lies in more than one stratum"),
 ])
 def test_design_errors_are_one_line(design_files, capsys, options, words):
     model, data = design_files

@@ -122,8 +122,6 @@ def design_columns(weights: str | None = None, cluster: str | None = None, strat
     if weight_kind is not None and weights is None:
         raise OptionError("a kind of weights is given but no weights column, so it cannot apply; name the column")
     kind = WeightKind.parse(weight_kind, "the kind of weights") if weight_kind is not None else WeightKind.SAMPLING
-    if strata is not None and cluster is None and weights is None:
-        pass  # strata alone: each row is its own sampling unit within its stratum
     if weights is None and cluster is None and strata is None:
         return None
     return DesignColumns(weights, cluster, strata, kind)
@@ -135,7 +133,8 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
     columns; each problem is an error naming the column and a data row."""
     names = [n for _, n in columns.names]
     if len(set(names)) != len(names):
-        raise OptionError(f"the column '{printable(names[0])}' is named for two parts of the design; each needs its own")
+        twice = next(n for n in names if names.count(n) > 1)
+        raise OptionError(f"the column '{printable(twice)}' is named for two parts of the design; each needs its own")
     for what, name in columns.names:
         if name not in frame.columns:
             raise OptionError(f"{source}: there is no {what} column '{printable(name)}'")
@@ -159,8 +158,7 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             absent = frame[name].isna().to_numpy()
             if absent.any():
                 raise DataError(f"{source}: column '{printable(name)}', data row {rows[np.argmax(absent)]}: no {what} "
-                                f"given; every row needs one (leave such rows out with a row filter, --keep "
-                                f"'{printable(name)} present' is not assumed)")
+                                f"given; every row needs one (a row filter, --keep, can leave such rows out)")
     if columns.cluster is not None and columns.strata is not None:
         pairs = frame[[columns.cluster, columns.strata]].astype(str).drop_duplicates()
         shared = pairs[columns.cluster].duplicated()
