@@ -32,19 +32,18 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
         if m == 0:
             continue
         which = np.flatnonzero(n_missing == m)
-        miss = np.nonzero(~mask[which])[1].reshape(len(which), m)
-        groups.append((which, miss, (miss[:, :, None] * p + miss[:, None, :]).ravel()))  # cells of Sigma, flat
+        groups.append((which, np.nonzero(~mask[which])[1].reshape(len(which), m)))
     for iteration in range(1, max_iterations + 1):
         precision = np.linalg.inv(sigma)
         dev = np.where(mask, rows - mu, 0.0)
         completed = mu + dev
         extra = np.zeros((p, p))
-        for which, miss, cells in groups:
+        for which, miss in groups:
             block = precision[miss[:, :, None], miss[:, None, :]]  # L_mm of each row
             cond = np.linalg.inv(block)  # covariance of the missing part given the observed part
             side = np.einsum("rkp,rp->rk", precision[miss], dev[which])  # L_mo (x_o - mu_o)
             completed[which[:, None], miss] = mu[miss] - np.einsum("rkj,rj->rk", cond, side)
-            extra += np.bincount(cells, (cond * w[which, None, None]).ravel(), p * p).reshape(p, p)
+            np.add.at(extra, (miss[:, :, None], miss[:, None, :]), cond * w[which, None, None])
         new_mu = w @ completed / total
         centred = completed - new_mu
         new_sigma = ((centred * w[:, None]).T @ centred + extra) / total

@@ -41,11 +41,10 @@ def group_moments(moments, observed: tuple[str, ...]) -> GroupMoments:
     """One group's :class:`~cfa_tool.data.moments.SampleMoments` as the estimator needs them: the
     model's variables in the model's order."""
     if tuple(moments.names) == tuple(observed):
-        return GroupMoments(moments.covariance, moments.means, moments.n_obs, moments.rows, moments.design)
+        return GroupMoments(moments.covariance, moments.means, moments.n_obs, moments.rows)
     order = [moments.names.index(n) for n in observed]
     rows = moments.rows[:, order] if moments.rows is not None else None
-    return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs, rows,
-                        moments.design)
+    return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs, rows)
 
 
 class NormalParts:

@@ -26,7 +26,7 @@ from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments
 from cfa_tool.errors import CfaError, OptionError
 from cfa_tool.estimation.fiml import MissingDataLikelihood, fiml_baseline, fiml_log_likelihood
-from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments, group_moments
+from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
 from cfa_tool.data.patterns import pattern_data
 from cfa_tool.estimation.strategy import Alternative, search
 from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
@@ -102,7 +102,13 @@ class Estimation:
     message: str
 
 
-ordered_moments = group_moments
+def ordered_moments(moments: SampleMoments, observed: tuple[str, ...]) -> GroupMoments:
+    if tuple(moments.names) == tuple(observed):
+        return GroupMoments(moments.covariance, moments.means, moments.n_obs, moments.rows, moments.design)
+    order = [moments.names.index(n) for n in observed]
+    rows = moments.rows[:, order] if moments.rows is not None else None
+    return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs, rows,
+                        moments.design)
 
 
 def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options: FitOptions = FitOptions(),
