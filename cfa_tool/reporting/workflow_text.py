@@ -51,6 +51,14 @@ def _comparison_cells(r, robust_rows: bool) -> list[str]:
     return cells
 
 
+def _design_line(result, console: Console) -> bool:
+    """The sampling design of a fit in one paragraph (nothing without one); whether there was one."""
+    design = getattr(result, "design", None)
+    if design is not None:
+        console.print(design.sentence(result.method.full_information))
+    return design is not None
+
+
 def render_comparison(comparison, console: Console) -> None:
     console.print(Text("Model comparison", style="bold underline"))
     _problem_warnings(zip(comparison.names, comparison.results), console)
@@ -61,6 +69,7 @@ def render_comparison(comparison, console: Console) -> None:
                            f"compared on the same rows; the rows left out may differ from those kept.", style="bold"))
     console.print(f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
                   f"answer on any model's variables left out).")
+    _design_line(comparison.results[0], console)
     # one column per model, one row per index: readable in 80 columns for the usual two to four models
     table = _table("Fit of each model", [("", "left")] + [(name, "right") for name in comparison.names])
     robust_rows = any(r.robust is not None for r in comparison.results)
@@ -127,6 +136,7 @@ def _step_cells(t, delta_srmr) -> list[str]:
 def render_invariance(result, console: Console) -> None:
     console.print(Text(f"Measurement invariance across {result.group_column} ({', '.join(result.groups)})", style="bold underline"))
     console.print(f"Reference group (factor means fixed at zero): {result.groups[0]}")
+    _design_line(result.steps[0].result, console)
     for w in result.warnings:  # problems first
         console.print(Text(f"Warning: {w}", style="bold"))
     console.print(f"Each step after the configural one is judged by "
@@ -232,6 +242,9 @@ def render_bootstrap(pair, console: Console) -> None:
     console.print(Text(f"Bootstrap of {result.model_name}", style="bold underline"))
     console.print(f"{boot.replications} resamples of {result.n_obs} rows (seed {boot.seed}); {boot.converged} converged, "
                   f"{boot.replications - boot.converged} did not and are left out of the intervals.")
+    if _design_line(result, console):
+        console.print("Resamples draw whole clusters (each row its own cluster without them) within strata, and keep "
+                      "the rows' weights.")
     if boot.bollen_stine_p is not None:
         console.print(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
                       f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_value(result.fit.p_value)}).")

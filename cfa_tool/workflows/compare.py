@@ -53,6 +53,7 @@ class Comparison(Presentable):
                 for name, r in zip(self.names, self.results)
             ],
             "tests": [t.to_dict() for t in self.tests],
+            "design": self.results[0].design.to_dict() if self.results[0].design is not None else None,
             "not_nested": [dict(first=n.first, second=n.second, reason=n.reason,
                                 information_criteria_comparable=n.information_criteria) for n in self.not_nested],
         }

@@ -205,6 +205,7 @@ class InvarianceResult(Presentable):
             "alpha": self.alpha,
             "decision_rule": {"name": self.rule.value, "description": self.rule.description},
             "steps": [s.to_dict() for s in self.steps],
+            "design": self.steps[0].result.design.to_dict() if self.steps[0].result.design is not None else None,
             "freed": [f.to_dict() for f in self.freed],
             "latent_differences": [d.to_dict() for d in self.latent_differences],
             "latent_differences_note": self.latent_note,
