@@ -369,3 +369,14 @@ def test_a_cluster_across_groups_is_an_error(hs_data):
     data = hs_data.assign(unit=np.arange(len(hs_data)) % 20)  # every unit has rows in both schools
     with pytest.raises(DataError, match="has rows in more than one group of 'school'"):
         cfa_tool.fit(THREE_FACTORS, data, group="school", cluster="unit")
+
+
+def test_one_row_per_cluster_with_missing_answers(with_gaps):
+    # The same identity for full-information ML: cluster sums of one row are the rows' scores, so the
+    # cluster-robust variances are the Huber-White ones (Yuan-Bentler test) times C/(C-1).
+    plain = cfa_tool.fit(THREE_FACTORS, with_gaps, test="yuan-bentler")
+    clustered = cfa_tool.fit(THREE_FACTORS, with_gaps.assign(unit=np.arange(len(with_gaps))), cluster="unit")
+    n = len(with_gaps)
+    ordinary, cluster_se = _by_row(plain, "se"), _by_row(clustered, "se")
+    for key, se in ordinary.items():
+        assert cluster_se[key] == pytest.approx(se * np.sqrt(n / (n - 1)), rel=1e-8), key
