@@ -81,6 +81,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_output_options(fit)
     fit.add_argument("--id", metavar="COLUMN", help="column that names each row (never analysed): the case tables show it "
                                                     "beside the data-row number")
+    _add_design_options(fit)
 
     check = sub.add_parser("check", help="parse a model and check it against the data without fitting")
     check.add_argument("model", metavar="MODEL", help="model file")
@@ -96,6 +97,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_group_options(compare, required=False)
     _add_test_option(compare)
     _add_ordinal_options(compare)
+    _add_design_options(compare)
     add_report_options(compare)
 
     inv = sub.add_parser("invariance", help="test configural, metric, scalar and strict invariance across groups")
@@ -110,6 +112,7 @@ def build_parser() -> argparse.ArgumentParser:
                      help="how each step is judged: the chi-square difference test (default), the change in CFI, RMSEA "
                           "and SRMR against common-practice guides, or both")
     _add_ordinal_options(inv)
+    _add_design_options(inv)
     add_report_options(inv)
 
     rep = sub.add_parser("replicate", help="check that a model replicates in new data (or in random halves of one data set)")
@@ -122,6 +125,7 @@ def build_parser() -> argparse.ArgumentParser:
 
     _add_resampling_command(sub, "bootstrap", "bootstrap intervals and the Bollen-Stine p-value of a fit", 1000,
                             "number of resamples")
+    _add_design_options(sub.choices["bootstrap"])
 
     power = sub.add_parser("power", help="power and sample size of RMSEA tests of fit")
     power.add_argument("model", metavar="MODEL", nargs="?", help="model file (gives the degrees of freedom)")
@@ -215,10 +219,27 @@ def _add_resampling_command(sub, name: str, help_text: str, replications: int, w
     _add_run_options(p)
 
 
+def _add_design_options(p: argparse.ArgumentParser) -> None:
+    """The sampling design: weights, clusters and strata (cfa_tool.data.sample_design)."""
+    from cfa_tool.method import WeightKind
+
+    p.add_argument("--weights", metavar="COLUMN", help="column of sampling weights (rescaled to sum to the rows; "
+                   "sandwich standard errors and a scaled test), or of frequency weights with --weight-kind frequency")
+    p.add_argument("--weight-kind", choices=WeightKind.words(), default=None,
+                   help="'sampling' (default) or 'frequency': each row counts as often as its weight says")
+    p.add_argument("--cluster", metavar="COLUMN", help="column naming each row's cluster (school, clinic, firm): "
+                   "cluster-robust standard errors and test")
+    p.add_argument("--strata", metavar="COLUMN", help="column naming each row's stratum (clusters nested in strata)")
+
+
+def _design_args(args: argparse.Namespace) -> dict:
+    return {"weights": args.weights, "weight_kind": args.weight_kind, "cluster": args.cluster, "strata": args.strata}
+
+
 def _add_run_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--seed", type=int, default=1, help="random seed (default 1); the same seed gives the same result")
     p.add_argument("--workers", type=int, help="local processes (default: one per core)")
-    p.add_argument("--cluster", metavar="ADDRESS", help="Dask scheduler to run on, e.g. tcp://host:8786")
+    p.add_argument("--scheduler", metavar="ADDRESS", help="Dask scheduler to run on, e.g. tcp://host:8786")
     add_report_options(p)
 
 
@@ -340,6 +361,7 @@ def _run(args: argparse.Namespace) -> int:
         from cfa_tool.resources import resource_dir
 
         args.group = args.reference_group = args.sheet = None
+        args.weights = args.weight_kind = args.cluster = args.strata = None
         args.missing_codes, args.keep = (), []
         args.model = str(resource_dir("models") / "rider_three_factors.cfa")
         args.data = str(resource_dir("demo") / "rider_survey.csv")
@@ -363,7 +385,8 @@ def _run(args: argparse.Namespace) -> int:
 
         result = compare(args.models, args.data, group=args.group, reference_group=args.reference_group, test=fit_test(args),
                          sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
-                         ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
+                         ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
+                         **_design_args(args))
         return _emit(args, result)
     if args.command == "invariance":
         from cfa_tool.workflows.invariance import invariance
@@ -371,7 +394,8 @@ def _run(args: argparse.Namespace) -> int:
         result = invariance(args.model, args.data, args.group, reference_group=args.reference_group,
                             partial=args.partial, alpha=args.alpha, decide_by=args.decide_by, sheet=args.sheet,
                             missing_codes=args.missing_codes,
-                            keep=args.keep, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
+                            keep=args.keep, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
+                            **_design_args(args))
         return _emit(args, result)
     if args.command == "replicate":
         return _replicate(args)
@@ -429,17 +453,17 @@ def _simulation_command(args: argparse.Namespace) -> int:
             from cfa_tool.workflows.montecarlo import monte_carlo_power
 
             result = monte_carlo_power(read_model_file(args.model), args.n, args.replications, args.seed, args.alpha,
-                                       args.workers, args.cluster, advance, args.population_from)
+                                       args.workers, args.scheduler, advance, args.population_from)
         elif args.command == "bootstrap":
             from cfa_tool.workflows.bootstrap import bootstrap
 
             result = bootstrap(args.model, args.data, args.replications, args.seed, workers=args.workers,
-                               cluster=args.cluster, progress=advance, sheet=args.sheet, missing_codes=args.missing_codes,
-                               keep=args.keep)
+                               scheduler=args.scheduler, progress=advance, sheet=args.sheet,
+                               missing_codes=args.missing_codes, keep=args.keep, **_design_args(args))
         else:
             from cfa_tool.workflows.cutoffs import cutoffs
 
-            result = cutoffs(args.model, args.data, args.replications, args.seed, args.workers, args.cluster,
+            result = cutoffs(args.model, args.data, args.replications, args.seed, args.workers, args.scheduler,
                              advance, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep)
     return _emit(args, result)
 
@@ -612,7 +636,7 @@ def _fit_and_report(args: argparse.Namespace, model: str, data: str) -> int:
                  missing_codes=args.missing_codes, keep=args.keep, information=args.information,
                  mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations, test=fit_test(args),
                  missing=args.missing, ordinal=_ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
-                 id_column=getattr(args, "id", None))
+                 id_column=getattr(args, "id", None), **_design_args(args))
     return _emit(args, result, render)  # a model that does not converge raises EstimationError (exit 3)
 
 

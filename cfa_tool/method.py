@@ -100,6 +100,13 @@ class MissingData(Choice):
     LISTWISE = ("listwise", "listwise deletion", "listwise deletion")
 
 
+class WeightKind(Choice):
+    """What the numbers of a weights column mean."""
+
+    SAMPLING = ("sampling", "sampling weights", "sampling weights, rescaled to sum to the number of rows analysed")
+    FREQUENCY = ("frequency", "frequency weights", "frequency weights, each row counted as often as its weight says")
+
+
 class Items(Choice):
     """How the items are analysed."""
 

@@ -233,7 +233,7 @@ def test_cluster_gives_the_same_result_as_local_processes():
     local = monte_carlo_power(spec, 120, replications=40, seed=6, workers=2)
     with distributed.LocalCluster(n_workers=2, threads_per_worker=1, host="127.0.0.1", dashboard_address=None,
                                   processes=True) as cluster:
-        remote = monte_carlo_power(spec, 120, replications=40, seed=6, cluster=cluster.scheduler_address)
+        remote = monte_carlo_power(spec, 120, replications=40, seed=6, scheduler=cluster.scheduler_address)
     assert remote.to_dict() == local.to_dict()
 
 

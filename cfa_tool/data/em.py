@@ -16,12 +16,14 @@ from cfa_tool.data.patterns import PatternData, missing_groups
 
 
 def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float = 1e-10) -> tuple[np.ndarray, np.ndarray, int]:
-    """(mean, covariance with divisor N, iterations) of the unrestricted normal model."""
+    """(mean, covariance with divisor N, iterations) of the unrestricted normal model; with row weights
+    (``data.weights``) every mean and sum of the M-step is weighted (divisor the sum of the weights)."""
     rows = data.rows
+    w = data.row_weights
+    total = float(w.sum())
     mask = ~np.isnan(rows)
     n, p = rows.shape
-    mu = np.nanmean(rows, axis=0)
-    var = np.nanvar(rows, axis=0)
+    mu, var = weighted_available_moments(rows, w)
     sigma = np.diag(np.where(var > 0, var, 1.0))
     groups = list(missing_groups(mask))  # rows grouped by how many answers they miss, with the columns they miss
     for iteration in range(1, max_iterations + 1):
@@ -34,12 +36,22 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
             cond = np.linalg.inv(block)  # covariance of the missing part given the observed part
             side = np.einsum("rkp,rp->rk", precision[miss], dev[which])  # L_mo (x_o - mu_o)
             completed[which[:, None], miss] = mu[miss] - np.einsum("rkj,rj->rk", cond, side)
-            np.add.at(extra, (miss[:, :, None], miss[:, None, :]), cond)
-        new_mu = completed.mean(axis=0)
+            np.add.at(extra, (miss[:, :, None], miss[:, None, :]), cond * w[which, None, None])
+        new_mu = w @ completed / total
         centred = completed - new_mu
-        new_sigma = (centred.T @ centred + extra) / n
+        new_sigma = ((centred * w[:, None]).T @ centred + extra) / total
         change = max(np.max(np.abs(new_mu - mu)), np.max(np.abs(new_sigma - sigma)))
         mu, sigma = new_mu, new_sigma
         if change < tolerance * max(1.0, np.max(np.abs(sigma))):
             return mu, sigma, iteration
     raise EstimationError(f"the saturated model for the incomplete data did not converge in {max_iterations} EM iterations")
+
+
+def weighted_available_moments(rows: np.ndarray, weights: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Each column's mean and variance (divisor the sum of weights) over the rows that answered it."""
+    answered = ~np.isnan(rows)
+    filled = np.where(answered, rows, 0.0)
+    total = weights @ answered
+    mean = weights @ filled / total
+    var = weights @ np.where(answered, (filled - mean) ** 2, 0.0) / total
+    return mean, var

@@ -50,14 +50,17 @@ def label_notes(frame: pd.DataFrame, column: str) -> list[str]:
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
-                  reference: str | None = None, missing: MissingData | str = MissingData.LISTWISE) -> tuple[list[tuple[str, SampleMoments]], int]:
-    """Per-group moments (reference group first) and the number of rows without a group value."""
+                  reference: str | None = None, missing: MissingData | str = MissingData.LISTWISE,
+                  weights: str | None = None) -> tuple[list[tuple[str, SampleMoments]], int]:
+    """Per-group moments (reference group first) and the number of rows without a group value;
+    ``weights`` a column of row weights (see :func:`sample_moments`)."""
     labels = group_labels(frame, column, source, reference)
     keys = frame[column].map(lambda v: None if pd.isna(v) else _label(v))
     out = []
     for label in labels:
         part = frame.loc[(keys == label).to_numpy()]
-        out.append((label, sample_moments(part, names, source, group=f"'{label}' of {column}", missing=missing)))
+        out.append((label, sample_moments(part, names, source, group=f"'{label}' of {column}", missing=missing,
+                                          weights=weights)))
     return out, int(keys.isna().sum())
 
 

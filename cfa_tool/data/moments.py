@@ -29,6 +29,7 @@ class SampleMoments:
     group: str | None = None  # 'label of column' for one group of a multi-group data set
     rows: np.ndarray | None = field(default=None, repr=False, compare=False)  # the complete rows analysed
     row_numbers: np.ndarray | None = field(default=None, repr=False, compare=False)  # their data-row numbers (1-based)
+    design: object | None = field(default=None, repr=False, compare=False)  # data.sample_design.RowDesign of the rows
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
@@ -177,17 +178,20 @@ def row_numbers(frame: pd.DataFrame) -> np.ndarray:
 
 
 def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, group: str | None = None,
-                   missing: MissingData | str = MissingData.LISTWISE) -> SampleMoments:
+                   missing: MissingData | str = MissingData.LISTWISE, weights: str | None = None) -> SampleMoments:
     """Moments of the model variables: of the complete rows (listwise deletion), or, with
     ``missing='full-information'``, the EM estimates from every row with at least one answer
-    (the rows themselves are kept for the casewise likelihood)."""
+    (the rows themselves are kept for the casewise likelihood).  ``weights``: a column of row
+    weights (checked beforehand, see cfa_tool.data.sample_design): weighted means and covariance,
+    divisor the sum of the weights."""
     file_source = source
     if group is not None:
         source = f"{source} (group {group})"
     values = _numeric_rows(frame, names, source)
+    w = pd.to_numeric(frame[weights]).to_numpy(dtype=float) if weights is not None else None
     p = values.shape[1]
     if missing == MissingData.FULL_INFORMATION:  # the member or its word
-        return _incomplete_moments(values, names, source, file_source, group, len(frame))
+        return _incomplete_moments(values, names, source, file_source, group, len(frame), w)
     complete = ~np.isnan(values).any(axis=1)
     every_row = bool(complete.all())
     data = values if every_row else values[complete]
@@ -199,15 +203,22 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
             f"{source}: {n} complete {'row' if n == 1 else 'rows'} for {p} variables; the covariance matrix needs more rows than variables "
             f"(and a factor analysis far more)"
         )
-    means = data.mean(axis=0)
-    centred = data - means
-    cov = centred.T @ centred / n
+    if w is None:
+        means = data.mean(axis=0)
+        centred = data - means
+        cov = centred.T @ centred / n
+    else:
+        w = w[complete]
+        means = w @ data / w.sum()
+        centred = data - means
+        cov = (centred * w[:, None]).T @ centred / w.sum()
     _check_moments(cov, means, names, source)
     numbers = row_numbers(frame) if every_row else row_numbers(frame)[complete]
     return SampleMoments(tuple(names), cov, means, n, len(frame), len(frame) - n, file_source, group, data, numbers)
 
 
-def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int) -> SampleMoments:
+def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int,
+                        weights: np.ndarray | None = None) -> SampleMoments:
     from cfa_tool.data.em import em_saturated
     from cfa_tool.data.patterns import pattern_data
 
@@ -225,7 +236,7 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     i, j = np.unravel_index(np.argmin(together), together.shape)
     if together[i, j] == 0:
         raise DataError(f"{source}: no row answers both '{names[i]}' and '{names[j]}', so their covariance cannot be estimated")
-    mu, sigma, _ = em_saturated(pattern_data(data))
+    mu, sigma, _ = em_saturated(pattern_data(data, weights[answered] if weights is not None else None))
     _check_moments(sigma, mu, names, source)
     return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data)
 

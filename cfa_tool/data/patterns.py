@@ -9,18 +9,26 @@ import numpy as np
 
 @dataclass(frozen=True)
 class PatternData:
-    """Sufficient statistics of each missing-data pattern (observed parts embedded in p-space, zeros elsewhere)."""
+    """Sufficient statistics of each missing-data pattern (observed parts embedded in p-space, zeros elsewhere).
+
+    With row weights every statistic is weighted: counts are sums of weights, means and scatter weighted
+    means, so that every formula written for counts holds for the weighted likelihood (Asparouhov 2005)."""
 
     observed: np.ndarray  # (P, p) bool
-    counts: np.ndarray  # (P,) rows in each pattern
+    counts: np.ndarray  # (P,) rows in each pattern (the sum of their weights)
     means: np.ndarray  # (P, p) mean of the observed values
     scatter: np.ndarray  # (P, p, p) covariance of the observed values about their own mean, divisor count
     index: np.ndarray  # pattern of each row
     rows: np.ndarray  # the rows themselves (NaN where missing)
+    weights: np.ndarray | None = None  # weight of each row (None: every row weighs one)
 
     @property
     def n_obs(self) -> int:
-        return int(self.counts.sum())
+        return int(round(float(self.counts.sum())))
+
+    @property
+    def row_weights(self) -> np.ndarray:
+        return np.ones(len(self.rows)) if self.weights is None else self.weights
 
 
 def group_patterns(observed: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -57,20 +65,24 @@ def missing_groups(observed: np.ndarray):
         yield which, np.nonzero(~observed[which])[1].reshape(len(which), m)
 
 
-def pattern_data(rows: np.ndarray) -> PatternData:
-    """Group rows by pattern; rows with nothing observed must be removed beforehand."""
+def pattern_data(rows: np.ndarray, weights: np.ndarray | None = None) -> PatternData:
+    """Group rows by pattern; rows with nothing observed must be removed beforehand.  With ``weights``
+    (one per row, positive) counts, means and scatter are weighted."""
     mask = ~np.isnan(rows)
     patterns, index, counts = group_patterns(mask)
     P, p = patterns.shape
     filled = np.where(mask, rows, 0.0)
-    sums = np.zeros((P, p))
-    np.add.at(sums, index, filled)
-    means = sums / counts[:, None]
-    centred = np.where(mask, filled - means[index], 0.0)
-    scatter = np.zeros((P, p, p))
-    np.add.at(scatter, index, centred[:, :, None] * centred[:, None, :])
+    if weights is not None:
+        counts = np.bincount(index, weights=weights, minlength=P)
+    w = np.ones(len(rows)) if weights is None else weights
+    # sums over the rows of each pattern: rows sorted by pattern, each pattern's run added up at once
+    order = np.argsort(index, kind="stable")
+    starts = np.searchsorted(index[order], np.arange(P))
+    means = np.add.reduceat((filled * w[:, None])[order], starts, axis=0) / counts[:, None]
+    centred = np.where(mask, filled - means[index], 0.0)[order]
+    scatter = np.add.reduceat((centred * w[order, None])[:, :, None] * centred[:, None, :], starts, axis=0)
     scatter /= counts[:, None, None]
-    return PatternData(patterns, counts, means, scatter, index, rows)
+    return PatternData(patterns, counts, means, scatter, index, rows, weights)
 
 
 def embedded_inverse(sigma: np.ndarray, observed: np.ndarray) -> tuple[np.ndarray, np.ndarray] | None:

@@ -21,6 +21,7 @@ import numpy as np
 
 from cfa_tool.estimation.objective import Evaluation
 from cfa_tool.model.rank_two import second_derivative_contraction
+from cfa_tool.data.em import weighted_available_moments
 from cfa_tool.data.patterns import PatternData, embedded_inverse, missing_groups
 from cfa_tool.model.implied import StructuredModel
 
@@ -77,7 +78,7 @@ class MissingDataLikelihood:
         self.means = True
         self.n_statistics = len(patterns) * (self.p * (self.p + 1) // 2 + self.p)
         self.saturated_value = [pattern_objective(d, mu, sigma) for d, (mu, sigma) in zip(patterns, saturated)]
-        self._row_blocks = [_row_blocks(d.rows) for d in patterns]  # fixed by the data: computed once
+        self._row_blocks = [_row_blocks(d.rows, d.row_weights) for d in patterns]  # fixed by the data: computed once
 
     def group_discrepancy(self, theta: np.ndarray, g: int) -> float:
         mats = self.model.matrices(theta, g)
@@ -163,7 +164,8 @@ class MissingDataLikelihood:
     def gradient(self, theta: np.ndarray) -> np.ndarray:
         """The gradient alone, row by row (no information matrix): what finite-difference
         second derivatives need.  With r_i = x_i - mu (observed part) and u_i = A_i r_i:
-        df/dSigma = (1/N) sum_i A_i - (1/N) sum_i u_i u_i',  df/dmu = -(2/N) sum_i u_i.
+        df/dSigma = (1/N) sum_i A_i - (1/N) sum_i u_i u_i',  df/dmu = -(2/N) sum_i u_i
+        (with row weights w_i every sum weighted and N = sum_i w_i; Asparouhov 2005).
         A_i comes from the precision matrix L by the Schur complement, row by row, without
         forming every pattern's p x p matrix: u_i = L r_i - L_.m C_i L_m. r_i (observed part),
         C_i = (L_mm)^-1."""
@@ -177,7 +179,8 @@ class MissingDataLikelihood:
             rows = data.rows
             p = self.p
             observed, together, blocks = self._row_blocks[g]
-            n = data.n_obs
+            weights = data.weights
+            n = float(data.counts.sum())
             resid = np.where(observed, rows - mats.implied_mean(), 0.0)
             v = resid @ precision
             u = v.copy()
@@ -188,11 +191,13 @@ class MissingDataLikelihood:
                 z = (cond @ v[which[:, None], miss][:, :, None])[:, :, 0]
                 u[which] -= np.einsum("rk,rkp->rp", z, side)
                 # sum over rows of side' cond side, as one matrix product over all (row, missing item) pairs
-                mean_A -= side.reshape(-1, p).T @ (cond @ side).reshape(-1, p) / n
+                left = side if weights is None else side * weights[which, None, None]
+                mean_A -= left.reshape(-1, p).T @ (cond @ side).reshape(-1, p) / n
             u = np.where(observed, u, 0.0)
-            M = mean_A - u.T @ u / n
+            wu = u if weights is None else u * weights[:, None]
+            M = mean_A - wu.T @ u / n
             d_sigma, d_mu = self.model.jacobian(theta, g)
-            total += w_group * (d_sigma.reshape(q, -1) @ M.ravel() - 2.0 * d_mu @ u.mean(axis=0))
+            total += w_group * (d_sigma.reshape(q, -1) @ M.ravel() - 2.0 * d_mu @ (wu.sum(axis=0) / n))
         return total
 
 
@@ -237,11 +242,11 @@ def _mean_second_derivatives(codes: np.ndarray, rows: np.ndarray, cols: np.ndarr
     return out
 
 
-def _row_blocks(rows: np.ndarray):
-    """(observed mask, co-observation counts, [(rows, their missing columns, observed mask of those rows)])
-    for each number of missing answers above zero."""
+def _row_blocks(rows: np.ndarray, weights: np.ndarray):
+    """(observed mask, co-observation counts (weighted), [(rows, their missing columns, observed mask of those
+    rows)]) for each number of missing answers above zero."""
     observed = ~np.isnan(rows)
-    together = observed.T.astype(float) @ observed.astype(float)
+    together = observed.T.astype(float) @ (observed * weights[:, None])
     blocks = [(which, miss, observed[which][:, None, :]) for which, miss in missing_groups(observed)]
     return observed, together, blocks
 
@@ -263,8 +268,7 @@ def fiml_baseline(likelihood: MissingDataLikelihood) -> tuple[float, int]:
     chi = 0.0
     df = 0
     for g, data in enumerate(likelihood.patterns):
-        mu = np.nanmean(data.rows, axis=0)
-        var = np.nanvar(data.rows, axis=0)
+        mu, var = weighted_available_moments(data.rows, data.row_weights)
         f = pattern_objective(data, mu, np.diag(var))
         chi += data.n_obs * (f - likelihood.saturated_value[g])
         p = data.rows.shape[1]

@@ -34,6 +34,7 @@ class GroupMoments:
     mean: np.ndarray
     n_obs: int
     rows: np.ndarray | None = None  # raw complete rows, when robust statistics are wanted
+    design: object | None = None  # data.sample_design.RowDesign of the rows (weights, clusters, strata), if any
 
 
 class NormalParts:

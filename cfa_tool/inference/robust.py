@@ -26,6 +26,7 @@ from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import scaled_inverse
 from cfa_tool.assessment.fit_indices import cfi_from, rmsea_from, rmsea_interval, tli_from
 from cfa_tool.estimation.ml import NormalLikelihood
+from cfa_tool.inference.design import moment_covariance
 from cfa_tool.method import FitTest
 from cfa_tool.model.implied import StructuredModel
 
@@ -72,15 +73,10 @@ def normal_weight(sigma_inv: np.ndarray) -> np.ndarray:
     return np.outer(h, h) * (A[np.ix_(I, I)] * A[np.ix_(J, J)] + A[np.ix_(I, J)] * A[np.ix_(J, I)])
 
 
-def asymptotic_covariance(rows: np.ndarray, with_means: bool) -> np.ndarray:
-    """Gamma: covariance (divisor N) of the casewise moment contributions (Browne 1984)."""
-    Z = rows - rows.mean(axis=0)
-    I, J = vech_indices(rows.shape[1])
-    parts = [Z] if with_means else []
-    parts.append(Z[:, I] * Z[:, J])
-    D = np.hstack(parts)
-    D = D - D.mean(axis=0)
-    return D.T @ D / len(rows)
+def asymptotic_covariance(rows: np.ndarray, with_means: bool, design=None) -> np.ndarray:
+    """Gamma: covariance (divisor N) of the casewise moment contributions (Browne 1984), under the
+    sampling design when one is given (see cfa_tool.inference.design)."""
+    return moment_covariance(rows, design, with_means)
 
 
 def _group_blocks(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood, g: int):
@@ -98,7 +94,7 @@ def _group_blocks(model: StructuredModel, theta: np.ndarray, likelihood: NormalL
         delta = np.vstack([d_mu.T, delta])
         p = model.p
         V = np.block([[sigma_inv, np.zeros((p, V.shape[0]))], [np.zeros((V.shape[0], p)), V]])
-    gamma = asymptotic_covariance(moments.rows, likelihood.means)
+    gamma = asymptotic_covariance(moments.rows, likelihood.means, moments.design)
     return delta, V, gamma
 
 
@@ -131,7 +127,7 @@ def baseline_trace(likelihood: NormalLikelihood) -> float:
         V = normal_weight(sigma_inv)
         delta = (I == J)[:, None] * (I[:, None] == np.arange(p)[None, :])  # d vech(Sigma) / d sigma_ii
         delta = delta.astype(float)
-        gamma = asymptotic_covariance(g.rows, False)
+        gamma = asymptotic_covariance(g.rows, False, g.design)
         VD = V @ delta
         bread = delta.T @ VD
         inv = np.linalg.inv(bread)

@@ -12,13 +12,18 @@ B = S'S / N the mean outer product of the row scores, and D = d beta / d theta:
 * c = [tr(A_s^-1 B_s) - tr((D'AD)^-1 D'BD)] / (2 df), A_s and B_s those of the
   saturated model at its estimates; the scaled statistic is T / c.  Under
   normality B = 2A and c = 1.
+
+With a sampling design, A is weighted and B is the design-based meat of
+cfa_tool.inference.design (Asparouhov 2005).
 """
 
 from __future__ import annotations
 
 import numpy as np
 
-from cfa_tool.estimation.fiml import MissingDataLikelihood, MissingParts
+from cfa_tool.data.em import weighted_available_moments
+from cfa_tool.estimation.fiml import MissingDataLikelihood, MissingParts, _trace_weights
+from cfa_tool.inference.design import design_meat
 from cfa_tool.numerics.linalg import scaled_inverse
 from cfa_tool.data.patterns import PatternData, embedded_inverse
 from cfa_tool.inference.robust import vech_indices
@@ -43,25 +48,24 @@ def moment_scores(data: PatternData, mu: np.ndarray, sigma: np.ndarray) -> tuple
     rows = data.rows
     observed = ~np.isnan(rows)
     resid = np.where(observed, rows - mu, 0.0)
-    A = A_patterns[data.index]
-    u = np.einsum("rij,rj->ri", A, resid)
-    M = A - u[:, :, None] * u[:, None, :]
+    u = np.einsum("rij,rj->ri", A_patterns[data.index], resid)
     I, J = vech_indices(len(mu))
     scale = np.where(I == J, 1.0, 2.0)
-    scores = np.hstack([-2.0 * u, M[:, I, J] * scale])
-    w = data.counts / data.n_obs
-    P, p, _ = A_patterns.shape
-    flat = A_patterns.reshape(P, p * p)
-    G = ((flat * w[:, None]).T @ flat).reshape(p, p, p, p).transpose(1, 2, 0, 3).reshape(p * p, p * p)
-    parts = MissingParts(np.zeros((p, p)), np.zeros(p), G, np.tensordot(w, A_patterns, axes=1))
+    # (A_i - u_i u_i') in vech order, without forming every row's p x p matrix
+    scores = np.hstack([-2.0 * u, (A_patterns[:, I, J][data.index] - u[:, I] * u[:, J]) * scale])
+    w = data.counts / data.counts.sum()
+    p = A_patterns.shape[1]
+    parts = MissingParts(np.zeros((p, p)), np.zeros(p), _trace_weights(A_patterns, A_patterns, w),
+                         np.tensordot(w, A_patterns, axes=1))
     return scores, parts
 
 
-def _trace_term(scores: np.ndarray, parts: MissingParts, D: np.ndarray | None) -> tuple[float, np.ndarray, np.ndarray]:
+def _trace_term(scores: np.ndarray, parts: MissingParts, D: np.ndarray | None, design=None,
+                ) -> tuple[float, np.ndarray, np.ndarray]:
     """tr((D'AD)^-1 D'BD) with its bread (D'AD)^-1 and meat D'BD (D = None: the saturated model itself)."""
     d_sigma, d_mu = _moment_directions(len(parts.mean_weight))
     A = parts.information(d_sigma, d_mu)
-    B = scores.T @ scores / len(scores)
+    B = design_meat(scores, design)
     if D is not None:
         A = D.T @ A @ D
         B = D.T @ B @ D
@@ -90,20 +94,20 @@ def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray, saturat
         D = _model_directions(likelihood, theta, g)
         d_sigma, d_mu = _moment_directions(likelihood.p)
         A = D.T @ parts.information(d_sigma, d_mu) @ D
-        B = D.T @ (scores.T @ scores / len(scores)) @ D
+        design = likelihood.groups[g].design
+        B = D.T @ design_meat(scores, design) @ D
         bread_total += w * A
         meat_total += w * B
         mu_s, sigma_s = saturated[g]
         s_scores, s_parts = moment_scores(data, mu_s, sigma_s)
-        trace_sat += _trace_term(s_scores, s_parts, None)[0]
-        mu_b = np.nanmean(data.rows, axis=0)
-        var_b = np.nanvar(data.rows, axis=0)
+        trace_sat += _trace_term(s_scores, s_parts, None, design)[0]
+        mu_b, var_b = weighted_available_moments(data.rows, data.row_weights)
         b_scores, b_parts = moment_scores(data, mu_b, np.diag(var_b))
         p = likelihood.p
         I, J = vech_indices(p)
         keep = np.concatenate([np.arange(p), p + np.flatnonzero(I == J)])  # means and variances
         D_base = np.eye(p + len(I))[:, keep]
-        trace_base += _trace_term(b_scores, b_parts, D_base)[0]
+        trace_base += _trace_term(b_scores, b_parts, D_base, design)[0]
     inv = scaled_inverse(bread_total)
     cov = inv @ meat_total @ inv / likelihood.n_total
     trace_model = float(np.sum(inv * meat_total.T))

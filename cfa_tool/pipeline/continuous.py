@@ -108,10 +108,11 @@ class Estimation:
 
 def ordered_moments(moments: SampleMoments, observed: tuple[str, ...]) -> GroupMoments:
     if tuple(moments.names) == tuple(observed):
-        return GroupMoments(moments.covariance, moments.means, moments.n_obs, moments.rows)
+        return GroupMoments(moments.covariance, moments.means, moments.n_obs, moments.rows, moments.design)
     order = [moments.names.index(n) for n in observed]
     rows = moments.rows[:, order] if moments.rows is not None else None
-    return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs, rows)
+    return GroupMoments(moments.covariance[np.ix_(order, order)], moments.means[order], moments.n_obs, rows,
+                        moments.design)
 
 
 def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options: FitOptions = FitOptions(),
@@ -123,9 +124,9 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     table, model = model_structure(spec, labels, fiml)
     moments = [ordered_moments(m, table.observed) for _, m in groups]
     if fiml:
-        patterns = [pattern_data(gm.rows) for gm in moments]
+        patterns = [pattern_data(gm.rows, gm.design.weights if gm.design is not None else None) for gm in moments]
         saturated = [(gm.mean, gm.covariance) for gm in moments]
-        summaries = [GroupMoments(gm.covariance, gm.mean, gm.n_obs) for gm in moments]
+        summaries = [GroupMoments(gm.covariance, gm.mean, gm.n_obs, design=gm.design) for gm in moments]
 
     def likelihood_of(model: StructuredModel) -> NormalLikelihood | MissingDataLikelihood:
         if fiml:
@@ -170,8 +171,6 @@ def fit_moments(spec: Spec, moments: SampleMoments | list[tuple[str | None, Samp
                 options: FitOptions = FitOptions(), group_column: str | None = None) -> FitResult:
     """Fit ``spec`` by normal-theory maximum likelihood to one or several groups' moments."""
     groups = [(None, moments)] if isinstance(moments, SampleMoments) else list(moments)
-    if options.missing is None:  # rows with gaps are decided by cfa_tool.fit; moments alone are complete rows
-        options = replace(options, missing=MissingData.LISTWISE)
     with blas_threads_for(len(spec.observed_names)):
         est = estimate(spec, groups, options)
         return assess(spec, groups, est, options, group_column)
@@ -181,6 +180,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
            group_column: str | None = None) -> FitResult:
     """Standard errors, fit indices, standardized values, modification indices and warnings."""
     table, model, likelihood, theta = est.table, est.model, est.likelihood, est.theta
+    if options.test is FitTest.ROBUST:  # the robust test that suits the rows fitted (FitTest.for_rows)
+        rows = MissingData.LISTWISE if likelihood.complete_data else MissingData.FULL_INFORMATION
+        options = replace(options, test=FitTest.ROBUST.for_rows(rows))
     multi = table.multigroup
     means = table.mean_structure
     n_total = likelihood.n_total
@@ -427,7 +429,16 @@ def _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_w
     return ReplicateFit(True, est.theta, values, std, se, chi, cfi, rmsea, srmr_)
 
 
-def moments_from_rows(rows: np.ndarray, names: tuple[str, ...], source: str = "<replication>") -> SampleMoments:
-    mean = rows.mean(axis=0)
+def moments_from_rows(rows: np.ndarray, names: tuple[str, ...], source: str = "<replication>",
+                      weights: np.ndarray | None = None, n_obs: int | None = None) -> SampleMoments:
+    """Moments of complete ``rows``; with ``weights`` the weighted means and covariance (divisor the sum of
+    the weights) and ``n_obs`` the N of the test statistic (default the number of rows)."""
+    n = len(rows) if n_obs is None else n_obs
+    if weights is None:
+        mean = rows.mean(axis=0)
+        dev = rows - mean
+        return SampleMoments(tuple(names), dev.T @ dev / len(rows), mean, n, len(rows), 0, source, None, rows)
+    mean = weights @ rows / weights.sum()
     dev = rows - mean
-    return SampleMoments(tuple(names), dev.T @ dev / len(rows), mean, len(rows), len(rows), 0, source, None, rows)
+    cov = (dev * weights[:, None]).T @ dev / weights.sum()
+    return SampleMoments(tuple(names), cov, mean, n, len(rows), 0, source, None, rows)

@@ -16,13 +16,15 @@ from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
+from cfa_tool.data.sample_design import DesignColumns, apply_design, check_design, design_columns, design_summary
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
 from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
+from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
-from cfa_tool.method import FitTest, MissingData, Weighting
+from cfa_tool.method import FitTest, MissingData, WeightKind, Weighting
 from cfa_tool.pipeline.results import CheckResult, FitResult
 
 
@@ -151,16 +153,23 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
 
 
 def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,
-                reference_group: str | None = None, missing: MissingData | str = MissingData.LISTWISE) -> tuple[list[tuple[str | None, SampleMoments]], list[str]]:
-    """Per-group (or single) sample moments of the model variables, with notes on rows left out."""
+                reference_group: str | None = None, missing: MissingData | str = MissingData.LISTWISE,
+                design: DesignColumns | None = None) -> tuple[list[tuple[str | None, SampleMoments]], list[str]]:
+    """Per-group (or single) sample moments of the model variables, with notes on rows left out;
+    weighted, and carrying each row's weight, cluster and stratum, under a sampling ``design``."""
     notes: list[str] = []
+    weights = design.weights if design is not None else None
     if group is None:
         if reference_group is not None:
             raise OptionError("a reference group needs a group column")
-        return [(None, sample_moments(frame, spec.observed_names, source, missing=missing))], notes
-    _check_group_column(spec, group)
-    groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing)
-    return groups, _no_group_notes(no_group, group) + label_notes(frame, group)
+        groups = [(None, sample_moments(frame, spec.observed_names, source, missing=missing, weights=weights))]
+    else:
+        _check_group_column(spec, group)
+        groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing, weights)
+        notes = _no_group_notes(no_group, group) + label_notes(frame, group)
+    if design is not None:
+        groups = apply_design(groups, frame, group, spec.observed_names, source, design, missing)
+    return groups, notes
 
 
 def _check_group_column(spec: Spec, group: str) -> None:
@@ -182,7 +191,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
         variables: list[str] | None = None, matrix: str = "covariance", sds=None, divisor: str = "n-1",
         ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, id_column: str | None = None,
-        **options) -> FitResult:
+        weights: str | None = None, cluster: str | None = None, strata: str | None = None,
+        weight_kind: str | None = None, **options) -> FitResult:
     """Fit a confirmatory factor model by maximum likelihood.
 
     ``model``: model text, a path to a model file, or a parsed Spec.
@@ -200,6 +210,12 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ``id_column``: a column that names each row (never analysed; not a model variable or the group
     column): the case diagnostics name their rows by it beside the data-row number; without it, a
     row-name column of the file (a first column without a name in the header) does.
+    ``weights``: a column of sampling weights (rescaled to sum to the number of rows; pseudo-maximum
+    likelihood, Muthen & Satorra 1995, and the weighted full-information likelihood, Asparouhov 2005),
+    or of frequency weights with ``weight_kind='frequency'`` (each row counted as often as its weight);
+    ``cluster``: a column naming each row's cluster (cluster-robust standard errors and test);
+    ``strata``: a column naming each row's stratum (clusters nested in strata).  Sampling weights and
+    clusters make the standard errors sandwich ones and the chi-square a scaled one.
     ``options``: ``information``, ``test``, ``missing``, ``mi_threshold``, ``mi_top``, ``max_iterations``;
     ``diagnostics=False`` and ``modification_indices=False`` skip the extras (normality tests,
     reliability, residual and case diagnostics; score tests) in loops that only need estimates,
@@ -210,6 +226,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     misbehaved and what to try; a returned result has always converged, so its ``fit`` is always set.
     """
     fit_options = make_options(options)
+    design = design_columns(weights, cluster, strata, weight_kind)
     if covariance is None:
         given = [name for name, value in (("n_obs", n_obs), ("means", means), ("variables", variables), ("sds", sds))
                  if value is not None] + [name for name, value, default in (("matrix", matrix, "covariance"),
@@ -223,6 +240,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         if ordinal or ordinal_estimator is not None:
             raise OptionError("ordinal items need the raw answers, not summary statistics")
+        if design is not None:
+            raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
+                              f"raw data")
         spec = load_spec(model)
         if covariance is not None:
             if data is not None:
@@ -245,8 +265,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                                                  (id_column,) if isinstance(id_column, str) else ())
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
-    result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator),
-                         ids_by_row_number(ids, frame))
+    result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
+                                   design), ids_by_row_number(ids, frame))
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 
@@ -261,12 +281,20 @@ def named_cases(result: FitResult, ids: dict) -> FitResult:
     return replace(result, groups=groups)
 
 
-def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator) -> FitResult:
+def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
+             design: DesignColumns | None = None) -> FitResult:
     """The fit of rows of raw data (after reading, filters and model checks)."""
     frame, source = loaded.frame, loaded.source
     ordinal_items = ordinal_items_of(spec, ordinal)
     spec = with_ordinal_levels(spec, ordinal_items)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
+    if design is not None:
+        if ordinal_items:
+            raise OptionError(f"ordinal items are not yet fitted with a sampling design, so the {design.names[0][0]} "
+                              f"column '{design.names[0][1]}' cannot apply; fit the items as continuous or leave out "
+                              f"the design")
+        frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
+        notes = list(notes) + design_notes
     if ordinal_items:
         result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
         labels = tuple(g.label for g in result.groups) if group is not None else None
@@ -274,9 +302,14 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                           ordinal_items)
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
     notes = missing_notes + notes
-    groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
+    if design is not None:
+        fit_options = design_test(fit_options, design)
+    with blas_threads_for(len(spec.observed_names)):  # EM on thousands of rows: one thread beats several on small p
+        groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design)
     notes += group_notes
     result = converged(fit_moments(spec, groups, fit_options, group_column=group))
+    if design is not None:
+        result = with_design(result, design_summary(frame, design, [m for _, m in groups]))
     every_row_complete = (sum(m.n_obs for _, m in groups) == len(frame)
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
     summary = None if every_row_complete else missing_summary(frame, spec.observed_names)
@@ -289,6 +322,31 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                                                       or not all(summary["coverage"].values())) else None,
                      labels=labels if labels["variables"] or labels["values"] else None)
     return _described(result, spec, tuple(label for label, _ in groups) if group is not None else None)
+
+
+def design_test(fit_options, design: DesignColumns):
+    """Under sampling weights or clusters the standard errors are sandwich ones and the test a scaled one
+    (Muthen & Satorra 1995; Asparouhov 2005): the robust test of the estimator replaces the normal-theory one."""
+    if not design.robust:
+        return fit_options
+    if fit_options.information is not None:
+        raise OptionError("with sampling weights, clusters or strata the standard errors are sandwich ones, so the "
+                          "information they come from (--standard-errors-from) cannot be chosen; remove that option")
+    if fit_options.test is FitTest.NORMAL:  # resolved for the rows as --robust is (FitTest.for_rows)
+        return replace(fit_options, test=FitTest.ROBUST.for_rows(fit_options.missing)
+                       if fit_options.missing is not None else FitTest.ROBUST)
+    return fit_options
+
+
+def with_design(result: FitResult, design) -> FitResult:
+    """The result stating the design it was fitted under (status line, JSON, methods paragraph, cautions)."""
+    caution = design.caution()
+    fit = result.fit
+    if fit is not None and design.columns.weights is not None and design.columns.kind is WeightKind.SAMPLING:
+        # a weighted log-likelihood is a pseudo-likelihood: information criteria built on it would mislead
+        fit = replace(fit, log_likelihood=None, aic=None, bic=None, sabic=None)
+    return replace(result, design=design, fit=fit, estimator=f"{result.estimator}; {design.columns.label()}",
+                   warnings=((caution,) if caution else ()) + result.warnings)
 
 
 def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, ...],

@@ -203,6 +203,7 @@ class FitResult(Presentable):
     parameter_covariance: np.ndarray | None = field(repr=False, default=None)  # of the free parameters (theta)
     parameter_labels: tuple[str, ...] = ()  # one per free parameter
     exploratory: tuple = ()  # exploration.blocks.RotatedBlock per exploratory block of the model
+    design: object | None = None  # data.sample_design.SampleDesign: weights, clusters and strata used, if any
 
     def cov_params(self):
         """The covariance matrix of the free parameters' estimates (the one the standard errors come from:
@@ -314,6 +315,7 @@ class FitResult(Presentable):
             out["reliability"]["scale"] = "latent responses (ordinal)" if self.method.ordinal else "observed items"
             out["diagnostics"] = self.groups[0].diagnostics_dict()
         out["missing_data"] = clean(self.missing_data) if self.missing_data is not None else None
+        out["design"] = clean(self.design.to_dict()) if self.design is not None else None
         if self.labels is not None:
             out["labels"] = {"variables": self.labels["variables"],
                              "values": {k: {str(code): text for code, text in v.items()} for k, v in self.labels["values"].items()}}

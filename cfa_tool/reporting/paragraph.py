@@ -252,6 +252,9 @@ def methods_paragraph(result) -> str:
     else:
         parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
+    design = getattr(result, "design", None)
+    if design is not None:
+        parts.append(design.sentence(result.method.full_information))
     inadmissible = not result.admissible
     if inadmissible:
         serious = [p for p in result.problems if p.kind.inadmissible]

@@ -77,6 +77,12 @@ def _comparison_cells(r, robust_rows: bool) -> tuple[list[str], list]:
     return cells, values
 
 
+def _design_lines(result) -> tuple[str, ...]:
+    """The sampling design of a fit in one line (none without a design)."""
+    design = getattr(result, "design", None)
+    return (design.sentence(result.method.full_information),) if design is not None else ()
+
+
 def comparison_report(comparison) -> Report:
     named = list(zip(comparison.names, comparison.results))
     problems = _problem_lines(named)
@@ -98,7 +104,7 @@ def comparison_report(comparison) -> Report:
                         f"answer on some model's variables and are left out of every model, so that all are compared on "
                         f"the same rows; the rows left out may differ from those kept.")
     lines = (f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
-             f"answer on any model's variables left out).",)
+             f"answer on any model's variables left out).", *_design_lines(comparison.results[0]))
     # one column per model, one row per index: readable in 80 columns for the usual two to four models
     robust_rows = any(r.robust is not None for r in comparison.results)
     cells = [_comparison_cells(r, robust_rows) for r in comparison.results]
@@ -249,6 +255,7 @@ def invariance_report(result) -> Report:
     notice = None if not result.warnings else ProblemNotice(
         SOME_NOT_ADMISSIBLE if inadmissible else T.CAUTION, tuple(result.warnings), inadmissible)
     lines = (f"Reference group (factor means fixed at zero): {result.groups[0]}",
+             *_design_lines(result.steps[0].result),
              f"Each step after the configural one is judged by "
              f"{result.rule.description.replace('alpha', unit(result.alpha, 2))}.")
     return Report(ResultKind.INVARIANCE, f"Measurement invariance across {result.group_column} ({', '.join(result.groups)})",
@@ -300,6 +307,9 @@ def bootstrap_report(boot) -> Report:
     result = boot.fit
     lines = [f"{boot.replications} resamples of {result.n_obs} rows (seed {boot.seed}); {boot.converged} converged, "
              f"{boot.replications - boot.converged} did not and are left out of the intervals."]
+    if _design_lines(result):
+        lines += [*_design_lines(result), "Resamples draw whole clusters (each row its own cluster without them) within "
+                                          "strata, and keep the rows' weights."]
     if boot.bollen_stine_p is not None:
         lines.append(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
                      f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_value(result.fit.p_value)}).")

@@ -10,6 +10,12 @@ so that the model holds exactly, Y = (X - m) S^-1/2 Sigma^1/2 + m, and counts
 the bootstrap chi-squares at least as large as the observed one.
 Replications that do not converge are counted and reported, never dropped
 silently.
+
+Under a sampling design whole clusters are resampled (each row its own cluster
+when none is given), independently within strata, and every row keeps its
+weight (the cluster bootstrap; Field & Welsh 2007): every statistic above is
+then the weighted one, the influence values are summed within clusters, and the
+Bollen-Stine transformation uses the weighted means and covariance.
 """
 
 from __future__ import annotations
@@ -28,7 +34,10 @@ from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import EstimationError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
-from cfa_tool.pipeline.inputs import continuous_only, converged, read_inputs, without_exploratory_blocks
+from cfa_tool.data.sample_design import check_design, design_columns, design_summary
+from cfa_tool.method import WeightKind
+from cfa_tool.pipeline.inputs import (continuous_only, converged, design_test, moments_for, read_inputs,
+                                      with_design, without_exploratory_blocks)
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.parallel import run_tasks
@@ -71,14 +80,47 @@ class BootstrapResult(Presentable):
 
 
 def _replicate(task):
-    spec, rows, names, seed, start = task
+    spec, rows, names, seed, start, design = task
     rng = np.random.default_rng(seed)
-    sample = rows[rng.integers(0, len(rows), len(rows))]
-    fit = replicate_fit(spec, moments_from_rows(sample, names), start=start, fit_indices_wanted=True)
+    if design is None:
+        sample = rows[rng.integers(0, len(rows), len(rows))]
+        moments = moments_from_rows(sample, names)
+    else:
+        picked = resampled_rows(design, rng)
+        w = design.weights[picked]
+        n_obs = int(round(w.sum())) if design.kind is WeightKind.FREQUENCY else len(picked)
+        moments = moments_from_rows(rows[picked], names, weights=w, n_obs=n_obs)
+    fit = replicate_fit(spec, moments, start=start, fit_indices_wanted=True)
     return fit.converged, fit.values, fit.standardized, fit.chi_square
 
 
-def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def sampling_units(design) -> list[list[np.ndarray]]:
+    """The rows of each cluster (each row its own cluster without clusters), stratum by stratum."""
+    n = len(design.weights)
+    units = design.clusters if design.clusters is not None else np.arange(n)
+    strata = design.strata if design.strata is not None else np.zeros(n, dtype=int)
+    out = []
+    for h in np.unique(strata):
+        in_h = np.flatnonzero(strata == h)
+        codes, inverse = np.unique(units[in_h], return_inverse=True)
+        order = np.argsort(inverse.ravel(), kind="stable")
+        bounds = np.searchsorted(inverse.ravel()[order], np.arange(len(codes) + 1))
+        out.append([in_h[order[bounds[c]:bounds[c + 1]]] for c in range(len(codes))])
+    return out
+
+
+def resampled_rows(design, rng: np.random.Generator) -> np.ndarray:
+    """Row indices of one cluster-bootstrap resample: in each stratum as many clusters as it has, drawn with
+    replacement (with one row per cluster and no strata, the same draw as resampling rows)."""
+    picked = []
+    for clusters in sampling_units(design):
+        for c in rng.integers(0, len(clusters), len(clusters)):
+            picked.append(clusters[c])
+    return np.concatenate(picked)
+
+
+def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.ndarray,
+                     design=None) -> tuple[np.ndarray, np.ndarray]:
     """Each row's empirical influence on every table entry, unstandardized and fully standardized
     ((N, E) arrays).
 
@@ -88,6 +130,8 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     estimate by H^-1 2 D'W ds, H the observed Hessian of the discrepancy (which, unlike the
     expected information, stays right when the model misfits).  Row i's influence puts
     vech(d_i d_i') - vech(S) for ds, d_i its deviation from the means (Hampel et al. 1986).
+    Under a sampling design the moments are weighted, each row's influence is multiplied by its
+    weight (rescaled to mean one) and the rows of a cluster are summed: one value per cluster.
     Entries are affine in theta; standardized values follow by the chain rule, their
     derivatives taken by central differences of the closed-form standardization."""
     from cfa_tool.assessment.standardized import standardize_entries
@@ -95,7 +139,8 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     from cfa_tool.pipeline.continuous import FitOptions, estimate
     from cfa_tool.inference.robust import normal_weight, vech_indices
 
-    est = estimate(spec, [(None, moments_from_rows(rows, names))], FitOptions(diagnostics=False), start=theta)
+    w = design.weights if design is not None else None
+    est = estimate(spec, [(None, moments_from_rows(rows, names, weights=w))], FitOptions(diagnostics=False), start=theta)
     model, table, theta = est.model, est.table, est.theta
     sigma = model.implied(theta)
     I, J = vech_indices(len(sigma))
@@ -103,9 +148,15 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     delta = d_sigma[:, I, J].T  # (p*, q)
     W = normal_weight(np.linalg.inv(sigma))
     WD = W @ delta
-    dev = rows - rows.mean(axis=0)
-    U = dev[:, I] * dev[:, J]
-    U -= U.mean(axis=0)
+    if w is None:
+        dev = rows - rows.mean(axis=0)
+        U = dev[:, I] * dev[:, J]
+        U -= U.mean(axis=0)
+    else:
+        dev = rows - w @ rows / w.sum()
+        U = dev[:, I] * dev[:, J]
+        U = (U - w @ U / w.sum()) * (w * len(w) / w.sum())[:, None]
+        U = np.vstack([U[rows_of].sum(axis=0) for clusters in sampling_units(design) for rows_of in clusters])
     hessian = est.likelihood.observed_hessian(theta)
     if hessian is None:
         hessian = 2.0 * (delta.T @ WD)
@@ -141,19 +192,22 @@ def bootstrap_options(replications: int, seed: int, workers: int | None) -> tupl
     return check.replications(replications, minimum=10), check.seed(seed)
 
 
-def bollen_stine_rows(rows: np.ndarray, sigma: np.ndarray) -> np.ndarray:
-    """Rows transformed to have the model-implied covariance matrix exactly (Bollen & Stine 1992)."""
-    mean = rows.mean(axis=0)
+def bollen_stine_rows(rows: np.ndarray, sigma: np.ndarray, weights: np.ndarray | None = None) -> np.ndarray:
+    """Rows transformed to have the model-implied covariance matrix exactly (Bollen & Stine 1992); with
+    ``weights``, their weighted covariance."""
+    w = np.ones(len(rows)) if weights is None else weights
+    mean = w @ rows / w.sum()
     dev = rows - mean
-    S = dev.T @ dev / len(rows)
+    S = (dev * w[:, None]).T @ dev / w.sum()
     transform = np.real(linalg.inv(linalg.sqrtm(S)) @ linalg.sqrtm(sigma))
     return dev @ transform + mean
 
 
 def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int = 1000, seed: int = 1,
-                  bollen_stine: bool = True, bca: bool = True, workers: int | None = None, cluster: str | None = None,
-                  progress=None) -> BootstrapResult:
-    """Bootstrap a converged single-group fit of complete ``rows`` (columns in the model's order)."""
+                  bollen_stine: bool = True, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
+                  progress=None, design=None) -> BootstrapResult:
+    """Bootstrap a converged single-group fit of complete ``rows`` (columns in the model's order); ``design``
+    the rows' data.sample_design.RowDesign, if any (clusters resampled, weights kept)."""
     if result.multigroup:
         raise OptionError("the bootstrap works on single-group fits")
     if not result.converged:
@@ -163,8 +217,8 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     names = result.observed
     start = result.theta
     seeds = np.random.SeedSequence(seed).generate_state(2 * replications)
-    tasks = [(spec, moments_rows, names, int(s), start) for s in seeds[:replications]]
-    draws = run_tasks(_replicate, tasks, workers, cluster, progress)
+    tasks = [(spec, moments_rows, names, int(s), start, design) for s in seeds[:replications]]
+    draws = run_tasks(_replicate, tasks, workers, scheduler, progress)
     ok = [d for d in draws if d[0]]
     if len(ok) < 2:
         raise EstimationError(f"{len(ok)} of {replications} bootstrap resamples could be fitted, too few for intervals; "
@@ -173,7 +227,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     standardized = np.array([d[2] for d in ok])
     accel_values = accel_std = None
     if bca:
-        influence, influence_std = influence_values(spec, moments_rows, names, start)
+        influence, influence_std = influence_values(spec, moments_rows, names, start, design)
         accel_values, accel_std = acceleration(influence), acceleration(influence_std)
     intervals = []
     for e, row in enumerate(result.estimates):
@@ -192,9 +246,10 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
                                           float(np.std(draws_e, ddof=1))))
     p_bs = converged_bs = None
     if bollen_stine:
-        transformed = bollen_stine_rows(moments_rows, result.implied_covariance)
-        btasks = [(spec, transformed, names, int(s), start) for s in seeds[replications:]]
-        bdraws = [d for d in run_tasks(_replicate, btasks, workers, cluster, progress) if d[0]]
+        transformed = bollen_stine_rows(moments_rows, result.implied_covariance,
+                                        design.weights if design is not None else None)
+        btasks = [(spec, transformed, names, int(s), start, design) for s in seeds[replications:]]
+        bdraws = [d for d in run_tasks(_replicate, btasks, workers, scheduler, progress) if d[0]]
         converged_bs = len(bdraws)
         if bdraws:
             p_bs = float(np.mean([d[3] >= result.fit.chi_square for d in bdraws]))
@@ -222,17 +277,29 @@ def _bca(draws: np.ndarray, point: float, a: float, level: float = 0.95) -> tupl
 
 
 def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 1000, seed: int = 1,
-              bollen_stine: bool = True, bca: bool = True, workers: int | None = None, cluster: str | None = None,
+              bollen_stine: bool = True, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
               progress=None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-              keep: tuple[str, ...] | list[str] = ()):
-    """Fit the model, then bootstrap it: the result holds the fit (``.fit``) and its bootstrap."""
+              keep: tuple[str, ...] | list[str] = (), weights: str | None = None, cluster: str | None = None,
+              strata: str | None = None, weight_kind: str | None = None):
+    """Fit the model, then bootstrap it: the result holds the fit (``.fit``) and its bootstrap.  A sampling design (``weights``,
+    ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights the fit and every resample, and the
+    resamples draw whole clusters within strata."""
     replications, seed = bootstrap_options(replications, seed, workers)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     continuous_only(spec, "bootstrap")
     without_exploratory_blocks(spec, "bootstrap", "it resamples the parameters, and a block's rotated loadings are "
                                                   "not among them")
-    moments = sample_moments(frame, spec.observed_names, source)
-    result = converged(fit_moments(spec, moments, FitOptions()))
+    design = design_columns(weights, cluster, strata, weight_kind)
+    options = FitOptions()
+    if design is not None:
+        frame, _ = check_design(frame, design, spec.observed_names, None, source)
+        options = design_test(options, design)
+        [(_, moments)], _ = moments_for(spec, frame, source, design=design)
+    else:
+        moments = sample_moments(frame, spec.observed_names, source)
+    result = converged(fit_moments(spec, moments, options))
+    if design is not None:
+        result = with_design(result, design_summary(frame, design, [moments]))
     order = [moments.names.index(n) for n in result.observed]
-    return bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, cluster,
-                         progress)
+    return bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, scheduler,
+                         progress, moments.design)

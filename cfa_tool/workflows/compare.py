@@ -7,9 +7,10 @@ from pathlib import Path
 
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (load_spec, make_options, moments_for, ordinal_estimator_option, ordinal_items_of,
+from cfa_tool.pipeline.inputs import (design_test, load_spec, make_options, moments_for, with_design, ordinal_estimator_option, ordinal_items_of,
                           read_inputs_with_notes, refuse_row_options, summary_source)
 from cfa_tool.data.matching import check_columns
+from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import OptionError, estimation_of
 from cfa_tool.estimation.ml import NormalLikelihood
@@ -52,6 +53,7 @@ class Comparison(Presentable):
                 for name, r in zip(self.names, self.results)
             ],
             "tests": [t.to_dict() for t in self.tests],
+            "design": self.results[0].design.to_dict() if self.results[0].design is not None else None,
             "not_nested": [dict(first=n.first, second=n.second, reason=n.reason,
                                 information_criteria_comparable=n.information_criteria) for n in self.not_nested],
         }
@@ -60,8 +62,12 @@ class Comparison(Presentable):
 def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, group: str | None = None,
             reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
             keep: tuple[str, ...] | list[str] = (), ordinal: str | list[str] | None = None,
-            ordinal_estimator: str | None = None, **options) -> Comparison:
+            ordinal_estimator: str | None = None, weights: str | None = None, cluster: str | None = None,
+            strata: str | None = None, weight_kind: str | None = None, **options) -> Comparison:
     """Fit every model to the same rows (complete on all their variables) and test each nested pair.
+
+    A sampling design (``weights``, ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights every
+    fit and makes the difference tests the scaled ones of the design-based statistics.
 
     With ordinal items (an 'ordinal' statement in any model, or ``ordinal``) every model is fitted
     by least squares on thresholds and polychoric correlations and nested pairs get the adjusted
@@ -76,6 +82,9 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         raise OptionError("compare fits every model to the same complete rows (listwise), so full-information ML and "
                           "its Yuan-Bentler test do not apply here; use the normal-theory or the Satorra-Bentler test")
     fit_options = replace(fit_options, missing=MissingData.LISTWISE)
+    design = design_columns(weights, cluster, strata, weight_kind)
+    if design is not None:
+        fit_options = design_test(fit_options, design)
     specs = [load_spec(m) for m in models]
     ordinal_items = set().union(*(ordinal_items_of(spec, ordinal) for spec in specs))
     specs = [with_ordinal_levels(spec, ordinal_items) for spec in specs]
@@ -85,6 +94,9 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group)
         if ordinal_items:
             raise OptionError("ordinal items need the raw answers, not a summary-statistics file")
+        if design is not None:
+            raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
+                              f"raw data")
         return _compare_summary(specs, names, data, fit_options, group)
     _, loaded, _ = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
@@ -94,6 +106,12 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     complete = frame.dropna(subset=used)
     if group is not None and group in frame.columns:
         complete = complete.loc[complete[group].notna()]
+    if design is not None:
+        if ordinal_items:
+            raise OptionError(f"ordinal items are not yet fitted with a sampling design, so the {design.names[0][0]} "
+                              f"column '{design.names[0][1]}' cannot apply")
+        used_columns = set(used)
+        complete, _ = check_design(complete, design, tuple(used_columns), group, source)
     dropped = len(frame) - len(complete)
     if ordinal_items:
         return _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items,
@@ -101,10 +119,12 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     results = []
     data_groups = []
     for spec, name in zip(specs, names):
-        groups, _ = moments_for(spec, complete, source, group, reference_group)
+        groups, _ = moments_for(spec, complete, source, group, reference_group, design=design)
         data_groups.append(groups)
         with estimation_of(f"model {name}"):
-            results.append(fit_moments(spec, groups, fit_options, group_column=group))
+            result = fit_moments(spec, groups, fit_options, group_column=group)
+        results.append(with_design(result, design_summary(complete, design, [m for _, m in groups]))
+                       if design is not None else result)
     tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped)
 

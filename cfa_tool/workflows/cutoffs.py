@@ -134,14 +134,14 @@ def cutoff_options(replications: int, seed: int, workers: int | None) -> tuple[i
 
 
 def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: int = 1, workers: int | None = None,
-                cluster: str | None = None, progress=None) -> CutoffResult:
+                scheduler: str | None = None, progress=None) -> CutoffResult:
     if result.multigroup or not result.converged or result.fit is None:
         raise OptionError("model-specific cutoffs need a converged single-group fit")
     replications, seed = cutoff_options(replications, seed, workers)
     n = result.n_obs
     wrong, what, size = misspecified_covariance(spec, result)
     seeds = np.random.SeedSequence(seed)
-    sample = _sampler(spec, result, replications, seeds, workers, cluster, progress)
+    sample = _sampler(spec, result, replications, seeds, workers, scheduler, progress)
     correct, mis = sample(result.implied_covariance, n), sample(wrong, n)
     if len(correct) < 10 or len(mis) < 10:
         raise OptionError("too few simulated fits converged to set cutoffs")
@@ -182,14 +182,14 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
                         misspecification_size=size)
 
 
-def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.SeedSequence, workers, cluster, progress):
+def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.SeedSequence, workers, scheduler, progress):
     """A function (population covariance, N) -> the fit indices of the converged simulated samples;
     each call draws fresh seeds from the one seed sequence, so the whole run repeats exactly."""
 
     def sample(sigma: np.ndarray, n: int) -> np.ndarray:
         states = seeds.spawn(1)[0].generate_state(replications)
         tasks = [(spec, sigma, result.observed, n, int(s), result.theta) for s in states]
-        draws = run_tasks(_replicate, tasks, workers, cluster, progress)
+        draws = run_tasks(_replicate, tasks, workers, scheduler, progress)
         return np.array([d[1:] for d in draws if d[0]]).reshape(-1, len(INDICES))
 
     return sample
@@ -216,7 +216,7 @@ def _cutoffs(correct: np.ndarray, mis: np.ndarray) -> dict[tuple[str, float], fl
 
 
 def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 200, seed: int = 1,
-            workers: int | None = None, cluster: str | None = None, progress=None, sheet: str | None = None,
+            workers: int | None = None, scheduler: str | None = None, progress=None, sheet: str | None = None,
             missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = ()):
     """Fit the model, then simulate model-specific fit-index cutoffs: the result holds the fit (``.fit``) and the
     cutoffs."""
@@ -224,4 +224,4 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     continuous_only(spec, "cutoffs")
     result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
-    return fit_cutoffs(spec, result, replications, seed, workers, cluster, progress)
+    return fit_cutoffs(spec, result, replications, seed, workers, scheduler, progress)

@@ -18,14 +18,15 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (check_ordinal_options, make_options, moments_for, ordinal_estimator_option, ordinal_groups,
-                          ordinal_items_of, read_inputs)
+from cfa_tool.pipeline.inputs import (check_ordinal_options, design_test, make_options, moments_for, ordinal_estimator_option,
+                                      ordinal_groups, ordinal_items_of, read_inputs, with_design)
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, OptionError
 from cfa_tool.pipeline.continuous import assess, estimate
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
+from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.workflows.nesting import DifferenceTest, difference_test
 from cfa_tool.views import Presentable
 
@@ -204,6 +205,7 @@ class InvarianceResult(Presentable):
             "alpha": self.alpha,
             "decision_rule": {"name": self.rule.value, "description": self.rule.description},
             "steps": [s.to_dict() for s in self.steps],
+            "design": self.steps[0].result.design.to_dict() if self.steps[0].result.design is not None else None,
             "freed": [f.to_dict() for f in self.freed],
             "latent_differences": [d.to_dict() for d in self.latent_differences],
             "latent_differences_note": self.latent_note,
@@ -214,9 +216,13 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                reference_group: str | None = None, partial: str = "none", alpha: float | None = None,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None,
-               decide_by: str | DecisionRule = DecisionRule.DIFFERENCE_TEST, **options) -> InvarianceResult:
+               decide_by: str | DecisionRule = DecisionRule.DIFFERENCE_TEST, weights: str | None = None,
+               cluster: str | None = None, strata: str | None = None, weight_kind: str | None = None,
+               **options) -> InvarianceResult:
     """Fit the invariance ladder; with ``partial='auto'`` free the likeliest culprits until each step holds.
-    ``decide_by`` names how each step is judged (:class:`DecisionRule`).
+    ``decide_by`` names how each step is judged (:class:`DecisionRule`).  A sampling design (``weights``,
+    ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights every step, whose difference tests are
+    then the scaled ones of the design-based statistics.
 
     With ordinal items (an 'ordinal' statement or ``ordinal``) the ladder is configural, thresholds,
     metric, scalar, strict, fitted by least squares on thresholds and polychoric correlations."""
@@ -231,12 +237,19 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                           "alpha only with --decide-by difference-test or both")
     alpha = check.probability("alpha (the level of the difference tests)", 0.05 if alpha is None else alpha)
     fit_options = replace(make_options(options), diagnostics=False)
+    design = design_columns(weights, cluster, strata, weight_kind)
     spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
     if spec.invariant:
         raise OptionError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "
                           "'equal across groups' statements from the model file")
     ordinal_items = ordinal_items_of(spec, ordinal)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
+    if design is not None:
+        if ordinal_items:
+            raise OptionError(f"ordinal items are not yet fitted with a sampling design, so the {design.names[0][0]} "
+                              f"column '{design.names[0][1]}' cannot apply")
+        frame, _ = check_design(frame, design, spec.observed_names, group, source)
+        fit_options = design_test(fit_options, design)
     if ordinal_items:
         check_ordinal_options(fit_options)
         if rule is not DecisionRule.DIFFERENCE_TEST:
@@ -246,8 +259,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items)
         ladder = OrdinalLadder(ordinal_estimator)
     else:
-        groups, notes = moments_for(spec, frame, source, group, reference_group)
-        ladder = NormalLadder()
+        groups, notes = moments_for(spec, frame, source, group, reference_group, design=design)
+        ladder = NormalLadder(design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
     labels = tuple(label for label, _ in groups)
 
     steps: list[InvarianceStep] = []
@@ -440,11 +453,15 @@ class NormalLadder:
 
     levels = LEVELS
 
+    def __init__(self, design=None):
+        self.design = design  # data.sample_design.SampleDesign, stated in every step's result
+
     def estimate(self, spec, groups, options, start):
         return estimate(spec, groups, options, start=start)
 
     def assess(self, spec, groups, est, options, group_column):
-        return assess(spec, groups, est, options, group_column=group_column)
+        result = assess(spec, groups, est, options, group_column=group_column)
+        return with_design(result, self.design) if self.design is not None else result
 
     def difference(self, est, result, previous, level, previous_level) -> DifferenceTest:
         return difference_test(result, previous[1], level, previous_level)

@@ -66,7 +66,7 @@ def _replicate(task) -> tuple[bool, np.ndarray, np.ndarray]:
 
 
 def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int = 1, alpha: float = 0.05,
-                      workers: int | None = None, cluster: str | None = None, progress=None,
+                      workers: int | None = None, scheduler: str | None = None, progress=None,
                       population=None) -> MonteCarloPower:
     from cfa_tool.pipeline.inputs import continuous_only, load_spec
 
@@ -86,7 +86,7 @@ def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int
     table = population.table
     seeds = np.random.SeedSequence(seed).generate_state(replications)
     tasks = [(spec, population.sigma, population.observed, n_obs, int(s), population.theta) for s in seeds]
-    results = run_tasks(_replicate, tasks, workers, cluster, progress)
+    results = run_tasks(_replicate, tasks, workers, scheduler, progress)
     ok = [(theta, se) for converged, theta, se in results if converged]
     if not ok:
         raise OptionError("no replication converged; check the population values and the sample size")

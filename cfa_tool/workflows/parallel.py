@@ -16,7 +16,7 @@ def default_workers() -> int:
     return max(1, len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else (os.cpu_count() or 1))
 
 
-def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, cluster: str | None = None,
+def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, scheduler: str | None = None,
               progress: Callable[..., None] | None = None, chunk: int = 25) -> list:
     """fn(task) for every task, results in task order.  ``progress(0, more=n)`` announces the n tasks
     before they start (a workflow may run several batches), and ``progress(k)`` is called as tasks finish."""
@@ -24,8 +24,8 @@ def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, cluster
     progress = _progress_function(progress)
     if progress:
         progress(0, more=len(tasks))
-    if cluster:
-        return _run_on_cluster(fn, tasks, cluster, progress)
+    if scheduler:
+        return _run_on_cluster(fn, tasks, scheduler, progress)
     workers = default_workers() if workers is None else workers
     if workers <= 1 or len(tasks) <= chunk:
         out = []

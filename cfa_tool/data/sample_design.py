@@ -1,0 +1,272 @@
+"""The sampling design of a data set: weights, clusters and strata, read and checked.
+
+Sampling weights are rescaled to sum to the number of rows analysed (in each group), so that
+weights all equal to one constant give exactly the unweighted estimates and N stays the number
+of rows for the test statistic (pseudo-maximum likelihood; Muthen & Satorra 1995).  Frequency
+weights are counts: a row of weight 3 stands for three identical rows, and N is the sum of the
+weights.  The effective sample size is Kish's (1965) (sum w)^2 / sum w^2.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field, replace
+
+import numpy as np
+import pandas as pd
+
+from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.method import MissingData, WeightKind
+
+SMALL_NUMBER_OF_CLUSTERS = 30  # below about 30-50 clusters cluster-robust errors are too small (common practice)
+
+
+@dataclass(frozen=True)
+class DesignColumns:
+    """The columns a user named for the design (any of them may be None)."""
+
+    weights: str | None = None
+    cluster: str | None = None
+    strata: str | None = None
+    kind: WeightKind = WeightKind.SAMPLING
+
+    @property
+    def names(self) -> tuple[tuple[str, str], ...]:
+        return tuple((what, name) for what, name in (("weights", self.weights), ("cluster", self.cluster),
+                                                      ("strata", self.strata)) if name is not None)
+
+    def label(self) -> str:
+        """The design in the status line: 'design: sampling weights (w), clusters (school)'."""
+        parts = [f"{self.kind.label} ({self.weights})" if self.weights else None,
+                 f"clusters ({self.cluster})" if self.cluster else None, f"strata ({self.strata})" if self.strata else None]
+        return "design: " + ", ".join(p for p in parts if p)
+
+    @property
+    def robust(self) -> bool:
+        """Whether the design calls for sandwich standard errors and a scaled test (everything but frequency
+        weights alone, which are the same as repeated rows)."""
+        return self.cluster is not None or self.strata is not None or (
+            self.weights is not None and self.kind is WeightKind.SAMPLING)
+
+
+@dataclass(frozen=True)
+class RowDesign:
+    """Weight, cluster and stratum of each row analysed, in the order of the rows."""
+
+    weights: np.ndarray  # sampling weights rescaled to sum to the rows; frequency weights as given
+    kind: WeightKind
+    clusters: np.ndarray | None = field(default=None)  # integer code of each row's cluster
+    strata: np.ndarray | None = field(default=None)  # integer code of each row's stratum
+    given: tuple[float, float] = (0.0, 0.0)  # sum and sum of squares of the weights as given (before rescaling)
+
+    @property
+    def total(self) -> float:
+        return float(self.weights.sum())
+
+
+@dataclass(frozen=True)
+class SampleDesign:
+    """What the report states about the design used."""
+
+    columns: DesignColumns
+    rows: int
+    sum_of_weights: float | None  # of the weights as given (before rescaling)
+    effective_n: float | None  # Kish (1965)
+    clusters: int | None
+    strata: int | None
+
+    def to_dict(self) -> dict:
+        c = self.columns
+        return {"weights": c.weights, "weight_kind": c.kind.value if c.weights else None,
+                "sum_of_weights": self.sum_of_weights, "effective_sample_size": self.effective_n,
+                "cluster": c.cluster, "clusters": self.clusters, "strata_column": c.strata, "strata": self.strata,
+                "rows": self.rows, "sandwich": c.robust}
+
+    def sentence(self, full_information: bool = False) -> str:
+        """The design in the words of a methods paragraph."""
+        c = self.columns
+        parts = []
+        if c.weights is not None:
+            if c.kind is WeightKind.FREQUENCY:
+                parts.append(f"frequency weights from the column {c.weights} (sum {self.sum_of_weights:g}, taken as N)")
+            else:
+                parts.append(f"sampling weights from the column {c.weights} (sum {self.sum_of_weights:.6g}, rescaled to "
+                             f"sum to the {self.rows} rows; Kish's effective sample size {self.effective_n:.1f}), by "
+                             + ("the weighted full-information likelihood (Asparouhov 2005)" if full_information else
+                                "pseudo-maximum likelihood on weighted moments (Muthen & Satorra 1995)"))
+        if c.cluster is not None:
+            parts.append(f"{self.clusters} clusters defined by {c.cluster}")
+        if c.strata is not None:
+            parts.append(f"{self.strata} strata defined by {c.strata}")
+        text = "The sampling design was taken into account: " + "; ".join(parts) + "."
+        if c.robust:
+            text += (" Standard errors are sandwich estimates from the "
+                     + ("per-cluster sums of the rows' score contributions" if c.cluster else "rows' weighted score "
+                                                                                          "contributions")
+                     + " and the chi-square is scaled accordingly.")
+        return text
+
+    def caution(self) -> str | None:
+        if self.clusters is not None and self.clusters < SMALL_NUMBER_OF_CLUSTERS:
+            return (f"only {self.clusters} clusters in '{self.columns.cluster}': cluster-robust standard errors and tests "
+                    f"are too optimistic with fewer than about 30-50 clusters (common practice); read p-values with "
+                    f"caution")
+        return None
+
+
+def design_columns(weights: str | None = None, cluster: str | None = None, strata: str | None = None,
+                   weight_kind: WeightKind | str | None = None) -> DesignColumns | None:
+    """The design options checked for type (None when none is given)."""
+    for what, value in (("weights", weights), ("cluster", cluster), ("strata", strata)):
+        if value is not None and not isinstance(value, str):
+            raise OptionError(f"{what} must name a column (text), not {type(value).__name__}")
+    if weight_kind is not None and weights is None:
+        raise OptionError("a kind of weights is given but no weights column, so it cannot apply; name the column")
+    kind = WeightKind.parse(weight_kind, "the kind of weights") if weight_kind is not None else WeightKind.SAMPLING
+    if weights is None and cluster is None and strata is None:
+        return None
+    return DesignColumns(weights, cluster, strata, kind)
+
+
+def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: tuple[str, ...], group: str | None,
+                 source: str) -> tuple[pd.DataFrame, list[str]]:
+    """The rows to analyse (rows of weight zero left out, with a note) after every check of the design
+    columns; each problem is an error naming the column and a data row."""
+    names = [n for _, n in columns.names]
+    if len(set(names)) != len(names):
+        twice = next(n for n in names if names.count(n) > 1)
+        raise OptionError(f"the column '{printable(twice)}' is named for two parts of the design; each needs its own")
+    for what, name in columns.names:
+        if name not in frame.columns:
+            raise OptionError(f"{source}: there is no {what} column '{printable(name)}'")
+        if name in model_variables:
+            raise OptionError(f"'{printable(name)}' is an item in the model and cannot also be the {what} column")
+        if name == group:
+            raise OptionError(f"'{printable(name)}' is the group column and cannot also be the {what} column")
+    rows = _data_rows(frame)
+    notes: list[str] = []
+    if columns.weights is not None:
+        w = _weights(frame, columns, source, rows)
+        zero = w == 0
+        if zero.all():
+            raise DataError(f"{source}: every weight in column '{printable(columns.weights)}' is zero, so no row counts")
+        if zero.any():
+            frame = frame.loc[~zero]
+            notes.append(f"{int(zero.sum())} rows have weight 0 in '{columns.weights}' and were left out")
+            rows = rows[~zero]
+    for what, name in (("cluster", columns.cluster), ("stratum", columns.strata)):
+        if name is not None:
+            absent = frame[name].isna().to_numpy()
+            if absent.any():
+                raise DataError(f"{source}: column '{printable(name)}', data row {rows[np.argmax(absent)]}: no {what} "
+                                f"given; every row needs one (a row filter, --keep, can leave such rows out)")
+    if columns.cluster is not None and columns.strata is not None:
+        pairs = frame[[columns.cluster, columns.strata]].astype(str).drop_duplicates()
+        shared = pairs[columns.cluster].duplicated()
+        if shared.any():
+            cluster = pairs[columns.cluster][shared.to_numpy()].iloc[0]
+            raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' lies in "
+                            f"more than one stratum of '{printable(columns.strata)}'; clusters must be nested in strata")
+    if columns.cluster is not None and group is not None:
+        pairs = frame.loc[frame[group].notna(), [columns.cluster, group]].astype(str).drop_duplicates()
+        shared = pairs[columns.cluster].duplicated()
+        if shared.any():
+            cluster = pairs[columns.cluster][shared.to_numpy()].iloc[0]
+            raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
+                            f"more than one group of '{printable(group)}'; the groups are fitted as independent samples, "
+                            f"so every cluster must lie within one group")
+    if columns.strata is not None:
+        units = frame[columns.cluster].astype(str) if columns.cluster is not None else pd.Series(np.arange(len(frame)),
+                                                                                                 index=frame.index)
+        per_stratum = units.groupby(frame[columns.strata].astype(str).to_numpy()).nunique()
+        single = per_stratum[per_stratum < 2]
+        if len(single):
+            raise DataError(f"{source}: stratum '{printable(single.index[0])}' of column '{printable(columns.strata)}' "
+                            f"has a single {'cluster' if columns.cluster else 'row'}, so its variance cannot be estimated; "
+                            f"merge it with a neighbouring stratum")
+    return frame, notes
+
+
+def _data_rows(frame: pd.DataFrame) -> np.ndarray:
+    from cfa_tool.data.moments import row_numbers
+
+    return row_numbers(frame)
+
+
+def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.ndarray) -> np.ndarray:
+    name = columns.weights
+    values = pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=float)
+    where = f"{source}: weights column '{printable(name)}', data row"
+    text = np.isnan(values) & frame[name].notna().to_numpy()
+    if text.any():
+        raise DataError(f"{where} {rows[np.argmax(text)]}: '{printable(str(frame[name].iloc[np.argmax(text)]))[:40]}' "
+                        f"is not a number")
+    for bad, what in ((np.isnan(values), "no weight (every row needs one; leave such rows out with --keep)"),
+                      (np.isinf(values), "an infinite weight"), (values < 0, "a negative weight")):
+        if bad.any():
+            raise DataError(f"{where} {rows[np.argmax(bad)]}: {what}")
+    if columns.kind is WeightKind.FREQUENCY:
+        fraction = values != np.round(values)
+        if fraction.any():
+            raise DataError(f"{where} {rows[np.argmax(fraction)]}: frequency weights count rows and must be whole "
+                            f"numbers, not {values[np.argmax(fraction)]:g} (for sampling weights leave out the kind)")
+    return values
+
+
+def row_design(frame: pd.DataFrame, columns: DesignColumns, kept: np.ndarray) -> RowDesign:
+    """The design of the rows ``kept`` (a mask over ``frame``), sampling weights rescaled to sum to their number."""
+    if columns.weights is not None:
+        w = pd.to_numeric(frame[columns.weights]).to_numpy(dtype=float)[kept]
+    else:
+        w = np.ones(int(kept.sum()))
+    given = (float(w.sum()), float(w @ w))
+    if columns.kind is WeightKind.SAMPLING:
+        w = w * (len(w) / w.sum())
+    codes = [pd.factorize(frame[name].astype(str).to_numpy()[kept])[0] if name is not None else None
+             for name in (columns.cluster, columns.strata)]
+    return RowDesign(w, columns.kind, *codes, given=given)
+
+
+def kept_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, missing) -> np.ndarray:
+    """The rows sample moments use: complete rows (listwise) or rows with any answer (full information)."""
+    from cfa_tool.data.moments import numeric_columns
+
+    answered = ~np.isnan(numeric_columns(frame, names, source))
+    if missing == MissingData.FULL_INFORMATION:
+        return answered.any(axis=1)
+    return answered.all(axis=1)
+
+
+def with_row_design(moments, design: RowDesign):
+    """``moments`` (SampleMoments of the same rows, already weighted by :func:`cfa_tool.data.moments.sample_moments`)
+    with the design attached; with frequency weights N is the sum of the weights."""
+    n_obs = int(round(design.total)) if design.kind is WeightKind.FREQUENCY else moments.n_obs
+    return replace(moments, n_obs=n_obs, design=design)
+
+
+def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list) -> SampleDesign:
+    """The design as the report states it, over the rows analysed in every group."""
+    rows = sum(len(m.rows) for m in moments)
+    total = square = None
+    if columns.weights is not None:
+        total = sum(m.design.given[0] for m in moments)
+        square = sum(m.design.given[1] for m in moments)
+    kish = total ** 2 / square if total is not None and columns.kind is WeightKind.SAMPLING else total
+    clusters = sum(len(np.unique(m.design.clusters)) for m in moments) if columns.cluster else None
+    strata = len(pd.unique(frame[columns.strata].astype(str))) if columns.strata else None
+    return SampleDesign(columns, rows, total, kish, clusters, strata)
+
+
+def apply_design(groups: list, frame: pd.DataFrame, group_column: str | None, names: tuple[str, ...], source: str,
+                 columns: DesignColumns, missing) -> list:
+    """Each group's (label, SampleMoments) with the design of its rows attached."""
+    from cfa_tool.data.labels import label_text
+
+    out = []
+    for label, moments in groups:
+        part = frame
+        if group_column is not None:
+            keys = frame[group_column].map(lambda v: None if pd.isna(v) else label_text(v))
+            part = frame.loc[(keys == label).to_numpy()]
+        kept = kept_rows(part, names, source, missing)
+        out.append((label, with_row_design(moments, row_design(part, columns, kept))))
+    return out
