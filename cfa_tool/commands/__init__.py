@@ -1,8 +1,8 @@
-"""Commands that live in modules of their own: each registers its subparser and runs it.
+"""The commands, one module each: each registers its subparser (``add_parser``) and runs it (``run``).
 
-``cfa_tool.cli`` calls :func:`add_parsers` when it builds its parser and :func:`run` for these
-commands; everything else about a command (its options, checks of its outputs, its report) is in its
-module.
+``cfa_tool.cli`` calls :func:`add_parsers` when it builds its parser and :func:`run` for the command
+given; everything about a command (its options, checks of its outputs, its report) is in its module,
+and the options several commands share are in :mod:`cfa_tool.commands.options`.
 """
 
 from __future__ import annotations
@@ -10,9 +10,10 @@ from __future__ import annotations
 import argparse
 from importlib import import_module
 
-#: command name -> module (imported when the command runs or its parser is built)
-MODULES = {"scores": "cfa_tool.commands.scores", "explore": "cfa_tool.commands.explore",
-           "report": "cfa_tool.commands.report"}
+#: command name -> module, in the order of the help (each imported when its parser is built or it runs)
+MODULES = {name: f"cfa_tool.commands.{name.replace('-', '_')}" for name in (
+    "fit", "check", "compare", "invariance", "replicate", "bootstrap", "power", "power-simulation", "simulate",
+    "cutoffs", "demo", "scores", "explore", "report")}
 
 
 def add_parsers(sub) -> None:

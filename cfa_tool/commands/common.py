@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import argparse
+import contextlib
+import sys
 from pathlib import Path
 
 from cfa_tool.errors import OptionError, printable
@@ -63,8 +65,9 @@ def report_files(args: argparse.Namespace, result, html, markdown, report=None) 
     return files
 
 
-#: the report options' files: (option, attribute of the parsed arguments)
-REPORT_FILES = (("--json", "json"), ("--html", "html"), ("--markdown", "markdown"), ("--docx", "docx"))
+#: every file option of the commands: (option, attribute of the parsed arguments)
+REPORT_FILES = (("--json", "json"), ("--html", "html"), ("--markdown", "markdown"), ("--docx", "docx"),
+                ("--diagram", "diagram"), ("--output", "output"))
 
 
 def add_report_options(p: argparse.ArgumentParser, json: bool = True) -> None:
@@ -151,3 +154,139 @@ def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
     write_reports(args, files)
     write_tables(args, tables, inputs)
     return 0
+
+
+def progress(label: str):
+    """A progress bar on standard error when it is a terminal (count done of the count announced,
+    percentage, time remaining); otherwise silence."""
+    if not sys.stderr.isatty():
+        return contextlib.nullcontext(None)
+    from rich.console import Console
+    from rich.progress import BarColumn, MofNCompleteColumn, Progress, TaskProgressColumn, TextColumn, TimeRemainingColumn
+
+    @contextlib.contextmanager
+    def bar():
+        columns = (TextColumn("{task.description}"), BarColumn(), MofNCompleteColumn(), TaskProgressColumn(),
+                   TextColumn("remaining"), TimeRemainingColumn())
+        with Progress(*columns, transient=True, console=Console(stderr=True)) as progress:
+            task = progress.add_task(label, total=0)
+
+            def advance(done: int, more: int = 0) -> None:
+                if more:
+                    progress.update(task, total=progress.tasks[0].total + more)
+                if done:
+                    progress.advance(task, done)
+
+            yield advance
+
+    return bar()
+
+
+DIAGRAM_SUFFIXES = (".svg", ".png")
+
+
+def inputs_of(args: argparse.Namespace) -> list[str]:
+    """Every file the command reads: models, data, calibration and validation files."""
+    names = [getattr(args, "model", None), *(getattr(args, "models", None) or ()),
+             getattr(args, "data", None), getattr(args, "calibration", None), getattr(args, "validation", None),
+             getattr(args, "population_from", None)]
+    return [n for n in names if n]
+
+
+def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
+    """Every output of the run checked before any work (see cfa_tool.output_files)."""
+    from cfa_tool.output_files import check_outputs
+    from cfa_tool.reporting.picture import png_converter, require_png_converter
+
+    diagram = getattr(args, "diagram", None)
+    if diagram and diagram != "-" and Path(diagram).suffix.lower() not in DIAGRAM_SUFFIXES:
+        raise OptionError(f"--diagram: '{diagram}' must end in .svg or .png (the two formats the diagram is written in)")
+    output = getattr(args, "output", None)
+    require_suffix("--output", output, ".csv", "the simulated rows")
+    outputs = [(option, getattr(args, attr, None)) for option, attr in REPORT_FILES]
+    targets = check_outputs(outputs, inputs, [("--tables", getattr(args, "tables", None))])
+    if output and "--output" in targets:  # rows of data: an existing file (perhaps someone's data) is never replaced
+        from cfa_tool.output_files import check_new_file
+
+        targets["--output"] = check_new_file(targets["--output"])
+    if diagram and diagram.lower().endswith(".png"):
+        require_png_converter()
+    if getattr(args, "dpi", None) is not None:
+        from cfa_tool import options as check
+
+        args.dpi = check.whole_number("--dpi", args.dpi, 72, 1200)
+    if getattr(args, "docx", None) and args.command in ("fit", "demo") and png_converter() is None:  # said before the work
+        from cfa_tool.reporting.docx_report import NO_PICTURE
+
+        print(f"cfa-tool: note: {NO_PICTURE}", file=sys.stderr)
+    args._targets = targets
+    args._stdout_taken = any(t.is_stdout for t in targets.values())
+    return targets
+
+
+def emit(args: argparse.Namespace, result, render=None) -> int:
+    """Make every output, check that each can be written, then show the report and write them (every result but
+    a fit, which has its own ``render``: the one report model, see commands.common.emit_report)."""
+    if render is None:
+        from cfa_tool.commands.common import emit_report
+
+        return emit_report(args, result, inputs_of(args))
+    from cfa_tool.output_files import check_table_folder, write_file, write_table_folder
+
+    files = fit_report_files(args, result)
+    tables = fit_table_files(args, result)
+    if tables:
+        check_table_folder("--tables", args.tables, tables, inputs_of(args))
+    if not args._stdout_taken:  # otherwise standard output carries that output alone
+        render(result, console())
+    for option, content, message in files:
+        write_file(args._targets[option], content)
+        if not args._targets[option].is_stdout:
+            say(args, message)
+    if tables:
+        write_table_folder("--tables", args.tables, tables, inputs_of(args))
+        say(args, f"Tables written to {args.tables}/ as CSV and LaTeX")
+    return 0
+
+
+def fit_report_files(args: argparse.Namespace, result) -> list[tuple[str, object, str]]:
+    """(option, content, message) of every report file asked for, made before anything is written."""
+    from cfa_tool.reporting.picture import svg_to_png
+    files: list[tuple[str, object, str]] = []
+    if getattr(args, "json", None):
+        from cfa_tool.reporting.json_report import to_json
+
+        files.append(("--json", to_json(result), f"JSON result written to {args.json}"))
+    if getattr(args, "html", None):
+        from cfa_tool.reporting.html_report import html_report
+
+        files.append(("--html", html_report(result), f"HTML report written to {args.html}"))
+    if getattr(args, "markdown", None):
+        from cfa_tool.reporting.text_formats import markdown_report
+
+        files.append(("--markdown", markdown_report(result), f"Markdown report written to {args.markdown}"))
+    if getattr(args, "docx", None):
+        from cfa_tool.reporting.docx_report import docx_report
+
+        files.append(("--docx", docx_report(result, args.dpi), f"Word report written to {args.docx}"))
+    if getattr(args, "diagram", None):
+        from cfa_tool.reporting.diagram import path_diagram
+
+        svg = path_diagram(result, legend=True)
+        content = svg_to_png(svg, args.dpi) if args.diagram.lower().endswith(".png") else svg
+        files.append(("--diagram", content, f"Path diagram written to {args.diagram}"))
+    return files
+
+
+def fit_table_files(args: argparse.Namespace, result) -> dict[str, str]:
+    if not getattr(args, "tables", None):
+        return {}
+    from cfa_tool.reporting import tables as T
+    from cfa_tool.reporting.text_formats import all_tables, csv_table, latex_table
+
+    files = {}
+    problems = T.problem_table(result) if hasattr(result, "problems") else None
+    for table in ([problems] if problems is not None else []) + all_tables(result):
+        files[f"{table.key}.csv"] = csv_table(table)
+        files[f"{table.key}.tex"] = latex_table(table)
+    return files

@@ -5,12 +5,12 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.commands.common import add_report_options, check_files, docx_file, report_files, require_suffix, say, \
-    table_files, write_reports, write_tables
+from cfa_tool.commands import options as O
+from cfa_tool.commands.common import add_report_options, check_files, console, docx_file, report_files, require_suffix, \
+    say, table_files, write_reports, write_tables
 
 
 def add_parser(sub) -> None:
-    from cfa_tool import cli
 
     p = sub.add_parser("explore", help="how many factors, an exploratory solution, and a draft model file")
     p.add_argument("--data", required=True, metavar="FILE", help="data file (rows of answers)")
@@ -37,13 +37,12 @@ def add_parser(sub) -> None:
     p.add_argument("--replications", type=int, default=100, help="random data sets of parallel analysis (default 100)")
     p.add_argument("--seed", type=int, default=0, help="seed of parallel analysis and of the rotation's random starts "
                                                        "(default 0)")
-    cli._add_data_options(p)
+    O.add_data_options(p)
     add_report_options(p)
 
 
 def run(args: argparse.Namespace) -> int:
     from cfa_tool.reporting.reports import report_of
-    from cfa_tool import cli
     from cfa_tool.language.parser import MODEL_SUFFIX
     from cfa_tool.output_files import check_new_file
     from cfa_tool.reporting.explore_report import explore_html_report, explore_markdown, render_explore
@@ -56,7 +55,7 @@ def run(args: argparse.Namespace) -> int:
     if args.draft:
         targets["--draft"] = check_new_file(targets["--draft"])
     result = explore(args.data, items=args.items, factors=args.factors, rotation=rotation,
-                     extraction=args.extraction, ordinal=cli._ordinal_arg(args.ordinal), split=args.split,
+                     extraction=args.extraction, ordinal=O.ordinal_arg(args.ordinal), split=args.split,
                      sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
                      replications=args.replications, seed=args.seed, target=args.target)
     files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
@@ -65,7 +64,7 @@ def run(args: argparse.Namespace) -> int:
     files += docx_file(args, report)
     tables = table_files(args, report, [args.data])
     if not args._stdout_taken:
-        render_explore(result, cli._console())
+        render_explore(result, console())
     write_reports(args, files)
     write_tables(args, tables, [args.data])
     if args.draft and not result.exploration.draft.usable:

@@ -5,11 +5,11 @@ from __future__ import annotations
 
 import argparse
 
+from cfa_tool.commands import options as O
 from cfa_tool.commands.common import add_report_options, check_files, emit_report, require_suffix, say
 
 
 def add_parser(sub) -> None:
-    from cfa_tool import cli
 
     p = sub.add_parser("scores", help="fit a model and write factor scores of every row, with their quality")
     p.add_argument("model", metavar="MODEL", help="model file")
@@ -22,10 +22,10 @@ def add_parser(sub) -> None:
                    help="also write each score's standard error (for regression scores the posterior standard deviation)")
     p.add_argument("--id", metavar="COLUMN", help="column written first to name each row (never analysed); default: "
                                                   "the file's row names, when its first header cell is empty")
-    cli._add_data_options(p)
-    cli._add_group_options(p, required=False)
-    cli._add_ordinal_options(p)
-    cli.add_incomplete_rows_option(p, " (in the fit; every row is scored from the items it answered either way)")
+    O.add_data_options(p)
+    O.add_group_options(p, required=False)
+    O.add_ordinal_options(p)
+    O.add_incomplete_rows_option(p, " (in the fit; every row is scored from the items it answered either way)")
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
     p.add_argument("--from-fit", metavar="RESULT.json",
                    help="score the data with the parameters of an earlier fit of MODEL (its 'fit --json' result) instead "
@@ -53,7 +53,6 @@ def _methods(text: str | None):
 def run(args: argparse.Namespace) -> int:
     from pathlib import Path
 
-    from cfa_tool import cli
     from cfa_tool.errors import OptionError
     from cfa_tool.workflows.factor_scores import score_with_saved_fit, scores
 
@@ -76,7 +75,7 @@ def run(args: argparse.Namespace) -> int:
     else:
         result = scores(Path(args.model), args.data, methods=_methods(args.method), standard_errors=args.standard_errors,
                         id_column=args.id, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
-                        missing_codes=args.missing_codes, keep=args.keep, ordinal=cli._ordinal_arg(args.ordinal),
+                        missing_codes=args.missing_codes, keep=args.keep, ordinal=O.ordinal_arg(args.ordinal),
                         ordinal_estimator=args.ordinal_estimator, missing=args.missing,
                         max_iterations=args.max_iterations)
     rows = ("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")

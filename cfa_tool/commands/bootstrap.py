@@ -1,0 +1,26 @@
+"""``cfa-tool bootstrap``: bootstrap intervals and the Bollen-Stine p-value of a fit."""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+from cfa_tool.commands import options as O
+from cfa_tool.commands.common import check_output, emit, inputs_of, progress
+
+
+def add_parser(sub) -> None:
+    p = O.add_resampling_parser(sub, "bootstrap", "bootstrap intervals and the Bollen-Stine p-value of a fit", 1000,
+                                "number of resamples")
+    O.add_design_options(p)
+
+
+def run(args: argparse.Namespace) -> int:
+    from cfa_tool.workflows.bootstrap import bootstrap
+
+    check_output(args, inputs_of(args))
+    with progress(args.command) as advance:
+        result = bootstrap(Path(args.model), args.data, args.replications, args.seed, workers=args.workers,
+                           scheduler=args.scheduler, progress=advance, sheet=args.sheet,
+                           missing_codes=args.missing_codes, keep=args.keep, **O.design_args(args))
+    return emit(args, result)

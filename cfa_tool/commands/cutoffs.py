@@ -1,0 +1,24 @@
+"""``cfa-tool cutoffs``: fit-index cutoffs simulated for this model and sample size."""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+from cfa_tool.commands import options as O
+from cfa_tool.commands.common import check_output, emit, inputs_of, progress
+
+
+def add_parser(sub) -> None:
+    O.add_resampling_parser(sub, "cutoffs", "fit-index cutoffs simulated for this model and sample size", 200,
+                            "samples per population")
+
+
+def run(args: argparse.Namespace) -> int:
+    from cfa_tool.workflows.cutoffs import cutoffs
+
+    check_output(args, inputs_of(args))
+    with progress(args.command) as advance:
+        result = cutoffs(Path(args.model), args.data, args.replications, args.seed, args.workers, args.scheduler,
+                         advance, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep)
+    return emit(args, result)

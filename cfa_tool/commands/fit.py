@@ -1,0 +1,61 @@
+"""``cfa-tool fit`` (and ``demo``, the same on the bundled rider survey): fit a model and report it."""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+from cfa_tool.commands import options as O
+from cfa_tool.commands.common import check_output, emit, inputs_of
+from cfa_tool.method import Information
+
+
+def add_parser(sub) -> None:
+    fit = sub.add_parser("fit", help="fit a model to data and report the result")
+    O.add_model_and_data(fit, "data file: CSV/TSV, Excel .xlsx, SPSS .sav/.por, Stata .dta, or a summary-statistics "
+                              "CSV (covariance or correlation matrix)")
+    O.add_data_options(fit)
+    O.add_group_options(fit, required=False)
+    add_fit_outputs(fit)
+    fit.add_argument("--id", metavar="COLUMN", help="column that names each row (never analysed): the case tables show it "
+                                                    "beside the data-row number")
+    O.add_design_options(fit)
+
+
+def add_fit_outputs(p: argparse.ArgumentParser) -> None:
+    """The options of a fit's estimation and of its report files."""
+    O.add_json_option(p)
+    p.add_argument("--html", metavar="PATH", help="write a self-contained HTML report (tables, path diagram, methods paragraph)")
+    p.add_argument("--markdown", metavar="PATH", help="write the report as Markdown")
+    p.add_argument("--docx", metavar="PATH", help="write the report as a Word document for a manuscript (numbered "
+                   "tables, methods paragraph, path diagram)")
+    p.add_argument("--diagram", metavar="PATH", help="write the path diagram as SVG (or PNG when PATH ends in .png and a converter is installed)")
+    p.add_argument("--dpi", type=int, default=300, help="resolution of pictures (PNG diagram, Word figure; default 300)")
+    p.add_argument("--tables", metavar="FOLDER", help="write every table as CSV and as LaTeX (booktabs) into FOLDER")
+    p.add_argument("--standard-errors-from", dest="information", choices=Information.words(), default=None,
+                   help="'expected' or 'observed' information (the curvature of the likelihood the standard errors come "
+                        "from; default: expected with complete rows, observed with full-information ML); --robust gives "
+                        "robust (sandwich) standard errors instead")
+    O.add_renamed(p, "--information", "choose where standard errors come from with --standard-errors-from "
+                                      "expected|observed")
+    p.add_argument("--mi-threshold", type=float, default=3.84, metavar="X",
+                   help="show modification indices of at least X (default 3.84)")
+    p.add_argument("--mi-top", type=int, default=None, metavar="N", help="show at most N modification indices")
+    p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
+    O.add_test_option(p)
+    O.add_ordinal_options(p)
+    O.add_incomplete_rows_option(p)
+
+
+def run(args: argparse.Namespace) -> int:
+    from cfa_tool.pipeline.inputs import fit
+    from cfa_tool.reporting.terminal import render
+
+    check_output(args, inputs_of(args))
+    # a model file is a path, never model text (cfa_tool.pipeline.inputs.load_spec reads a Path as a file)
+    result = fit(Path(args.model), args.data, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
+                 missing_codes=args.missing_codes, keep=args.keep, information=args.information,
+                 mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations,
+                 test=O.fit_test(args), missing=args.missing, ordinal=O.ordinal_arg(args.ordinal),
+                 ordinal_estimator=args.ordinal_estimator, id_column=getattr(args, "id", None), **O.design_args(args))
+    return emit(args, result, render)  # a model that does not converge raises EstimationError (exit 3)

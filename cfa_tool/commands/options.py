@@ -1,0 +1,135 @@
+"""Options that several commands share, each declared once: which rows and columns, groups, the robust
+switch, the sampling design, ordinal items, repetitions, and the options of earlier versions (one-line
+errors that show the option to use now)."""
+
+from __future__ import annotations
+
+import argparse
+
+from cfa_tool.errors import OptionError
+from cfa_tool.method import FitTest, MissingData, Weighting
+
+
+class Renamed(argparse.Action):
+    """An option of an earlier version: a one-line error that shows the option to use now."""
+
+    def __init__(self, option_strings, dest, now: str = "", **kwargs):
+        self.now = now
+        super().__init__(option_strings, dest, nargs="?", help=argparse.SUPPRESS, **kwargs)
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        parser.error(f"{option_string} is no longer an option; {self.now}")
+
+
+def add_renamed(p: argparse.ArgumentParser, option: str, now: str) -> None:
+    p.add_argument(option, action=Renamed, dest=f"_renamed_{option.strip('-')}", now=now)
+
+
+def add_model_and_data(p: argparse.ArgumentParser, data_help: str = "data file") -> None:
+    p.add_argument("model", metavar="MODEL", help="model file")
+    p.add_argument("--data", required=True, metavar="FILE", help=data_help)
+
+
+def add_data_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--sheet", metavar="NAME", help="sheet of an Excel workbook (default: the first)")
+    p.add_argument("--missing-codes", metavar="LIST", type=_codes, default=(),
+                   help="comma-separated values that mean 'no answer', e.g. -99,999")
+    p.add_argument("--keep", metavar="FILTER", action="append", default=[],
+                   help="keep only rows that meet COLUMN OPERATOR VALUE, e.g. 'district = north' (repeatable)")
+
+
+def _codes(text: str) -> tuple[float, ...]:
+    from cfa_tool.numbers import number
+
+    codes = [number(t) for t in text.split(",") if t.strip()]
+    if not codes or any(c is None for c in codes):
+        raise argparse.ArgumentTypeError(f"missing codes must be numbers separated by commas, not '{text}'")
+    return tuple(codes)
+
+
+GROUP_NOW = "name the column whose values are the groups with --group-column COLUMN"
+
+
+def add_group_options(p: argparse.ArgumentParser, required: bool) -> None:
+    p.add_argument("--group-column", dest="group", required=required, metavar="COLUMN",
+                   help="column whose values name the groups: the model is fitted in every group at once, with intercepts "
+                        "and factor means")
+    add_renamed(p, "--group", GROUP_NOW)
+    p.add_argument("--reference-group", metavar="LABEL",
+                   help="group whose factor means are fixed at zero (default: the first label in sorted order)")
+
+
+def add_test_option(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--robust", action="store_true",
+                   help="for answers that are not normally distributed: a scaled chi-square, robust standard errors and "
+                        "robust fit indices (Satorra-Bentler with complete rows, Yuan-Bentler when full-information ML "
+                        "keeps rows with gaps; the report names the one used)")
+    add_renamed(p, "--test", "for robust standard errors and a scaled test give --robust (the method follows from the "
+                              "data and is named in the report)")
+
+
+def fit_test(args: argparse.Namespace) -> FitTest:
+    """The test the command line asks for: a robust one with --robust, else the normal-theory test."""
+    return FitTest.ROBUST if args.robust else FitTest.NORMAL
+
+
+def add_resampling_parser(sub, name: str, help_text: str, replications: int, what: str) -> argparse.ArgumentParser:
+    p = sub.add_parser(name, help=help_text)
+    add_model_and_data(p)
+    add_data_options(p)
+    p.add_argument("--replications", type=int, default=replications, help=f"{what} (default {replications})")
+    add_run_options(p)
+    return p
+
+
+def add_design_options(p: argparse.ArgumentParser) -> None:
+    """The sampling design: weights, clusters and strata (cfa_tool.data.sample_design)."""
+    from cfa_tool.method import WeightKind
+
+    p.add_argument("--weights", metavar="COLUMN", help="column of sampling weights (rescaled to sum to the rows; "
+                   "sandwich standard errors and a scaled test), or of frequency weights with --weight-kind frequency")
+    p.add_argument("--weight-kind", choices=WeightKind.words(), default=None,
+                   help="'sampling' (default) or 'frequency': each row counts as often as its weight says")
+    p.add_argument("--cluster", metavar="COLUMN", help="column naming each row's cluster (school, clinic, firm): "
+                   "cluster-robust standard errors and test")
+    p.add_argument("--strata", metavar="COLUMN", help="column naming each row's stratum (clusters nested in strata)")
+
+
+def design_args(args: argparse.Namespace) -> dict:
+    return {"weights": args.weights, "weight_kind": args.weight_kind, "cluster": args.cluster, "strata": args.strata}
+
+
+def add_run_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--seed", type=int, default=1, help="random seed (default 1); the same seed gives the same result")
+    p.add_argument("--workers", type=int, help="local processes (default: one per core)")
+    p.add_argument("--scheduler", metavar="ADDRESS", help="Dask scheduler to run on, e.g. tcp://host:8786")
+    from cfa_tool.commands.common import add_report_options
+
+    add_report_options(p)
+
+
+def add_json_option(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--json", metavar="PATH", help="also write the result as JSON to PATH ('-' for standard output only)")
+
+
+def add_incomplete_rows_option(p: argparse.ArgumentParser, where: str = "") -> None:
+    p.add_argument("--incomplete-rows", dest="missing", choices=MissingData.words(), default=None,
+                   help="rows with some answers missing: kept and used by full-information ML (the default when a model "
+                        f"variable has gaps) or left out (listwise){where}")
+    add_renamed(p, "--missing", "choose what happens to rows with gaps with --incomplete-rows "
+                                 + "|".join(MissingData.words()))
+
+
+def add_ordinal_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--ordinal", metavar="ITEMS",
+                   help="'all' or comma-separated items to treat as ordinal (thresholds and polychoric correlations)")
+    p.add_argument("--ordinal-estimator", choices=Weighting.words(), default=None,
+                   help="least squares for ordinal items (default diagonally-weighted)")
+
+
+def ordinal_arg(text: str | None):
+    if text is None:
+        return None
+    if not text.strip(" ,"):
+        raise OptionError("--ordinal names no items: give 'all' or item names separated by commas")
+    return "all" if text.strip() == "all" else [t.strip() for t in text.split(",") if t.strip()]

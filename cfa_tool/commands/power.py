@@ -1,0 +1,36 @@
+"""``cfa-tool power``: power and sample size of RMSEA tests of fit."""
+
+from __future__ import annotations
+
+import argparse
+
+from cfa_tool.commands.common import add_report_options, check_output, emit, inputs_of
+
+
+def add_parser(sub) -> None:
+    power = sub.add_parser("power", help="power and sample size of RMSEA tests of fit")
+    power.add_argument("model", metavar="MODEL", nargs="?", help="model file (gives the degrees of freedom)")
+    power.add_argument("--df", type=int, help="degrees of freedom (instead of a model file)")
+    power.add_argument("--n", type=int, help="sample size whose power to report")
+    power.add_argument("--test", choices=("close", "not-close", "exact"), default="close", help="which test (default close)")
+    power.add_argument("--alpha", type=float, default=0.05, help="significance level (default .05)")
+    power.add_argument("--target", type=float, default=0.80, help="power the sample size should reach (default .80)")
+    add_report_options(power)
+
+
+def run(args: argparse.Namespace) -> int:
+    from cfa_tool.errors import OptionError
+    from cfa_tool.workflows.power import model_degrees_of_freedom, plan
+
+    check_output(args, inputs_of(args))
+    df = args.df
+    if args.model and args.df is not None:
+        raise OptionError("give a model file or --df, not both (the model file gives the degrees of freedom)")
+    variables = None
+    if args.model:
+        from cfa_tool.language.parser import read_model_file
+
+        df, variables = model_degrees_of_freedom(read_model_file(args.model))
+    if df is None:
+        raise OptionError("give a model file or --df")
+    return emit(args, plan(df, args.test, args.n, args.alpha, args.target, variables=variables))

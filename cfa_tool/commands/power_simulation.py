@@ -1,0 +1,30 @@
+"""``cfa-tool power-simulation``: Monte Carlo power, bias and coverage for a model with population values."""
+
+from __future__ import annotations
+
+import argparse
+
+from cfa_tool.commands import options as O
+from cfa_tool.commands.common import check_output, emit, inputs_of, progress
+
+
+def add_parser(sub) -> None:
+    mc = sub.add_parser("power-simulation", help="Monte Carlo power, bias and coverage for a model with population values")
+    mc.add_argument("model", metavar="MODEL", help="model file; 'start' and 'fix' statements give population values")
+    mc.add_argument("--n", type=int, required=True, help="sample size of each simulated data set")
+    mc.add_argument("--replications", type=int, default=500, help="number of data sets (default 500)")
+    mc.add_argument("--alpha", type=float, default=0.05, help="significance level (default .05)")
+    mc.add_argument("--population-from", metavar="RESULT", help="take the population values from an earlier fit of "
+                    "this model (the file written by 'fit --json')")
+    O.add_run_options(mc)
+
+
+def run(args: argparse.Namespace) -> int:
+    from cfa_tool.language.parser import read_model_file
+    from cfa_tool.workflows.montecarlo import monte_carlo_power
+
+    check_output(args, inputs_of(args))
+    with progress(args.command) as advance:
+        result = monte_carlo_power(read_model_file(args.model), args.n, args.replications, args.seed, args.alpha,
+                                   args.workers, args.scheduler, advance, args.population_from)
+    return emit(args, result)

@@ -1,0 +1,35 @@
+"""``cfa-tool replicate``: does a model replicate in new data, or in random halves of one data set?"""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+from cfa_tool.commands.common import add_report_options, check_output, emit, inputs_of
+
+
+def add_parser(sub) -> None:
+    rep = sub.add_parser("replicate", help="check that a model replicates in new data (or in random halves of one data set)")
+    rep.add_argument("model", metavar="MODEL", help="model file")
+    rep.add_argument("--calibration", metavar="FILE", help="data the model is estimated in")
+    rep.add_argument("--validation", metavar="FILE", help="new data the estimates are checked in")
+    rep.add_argument("--data", metavar="FILE", help="one data file to split at random into two halves")
+    rep.add_argument("--seed", type=int, default=1, help="seed of the random split (default 1)")
+    add_report_options(rep)
+
+
+def run(args: argparse.Namespace) -> int:
+    from cfa_tool.errors import OptionError
+    from cfa_tool.workflows.replication import Replications, replicate, split_half
+
+    check_output(args, inputs_of(args))
+    model = Path(args.model)
+    if args.data and (args.calibration or args.validation):
+        raise OptionError("give either --data (split-half) or --calibration and --validation, not both")
+    if args.data:
+        pair = split_half(model, args.data, seed=args.seed)
+    elif args.calibration and args.validation:
+        pair = (replicate(model, args.calibration, args.validation),)
+    else:
+        raise OptionError("give --calibration and --validation files, or --data FILE to split one data set in two halves")
+    return emit(args, Replications(tuple(pair)))
