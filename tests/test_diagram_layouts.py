@@ -1,0 +1,120 @@
+"""Every layout of the path diagram, checked for text that overlaps or leaves the picture.
+
+The extent of a text is estimated from its font size and number of characters, on the safe side: a
+character is taken as 0.62 em wide (the widest digits and lower-case letters of Helvetica and Arial are
+0.556 em, the average of lower-case text about 0.5 em: Adobe's Helvetica font metrics, the AFM file of
+the 35 standard PostScript fonts), the text as 1 em tall (0.8 em above the baseline, 0.2 em below), and
+the white halo drawn around value labels (stroke-width 3) adds 1.5 units on every side.  Two boxes
+overlap when they share more than a hair (0.5 units) in both directions.
+"""
+
+from __future__ import annotations
+
+import re
+import shutil
+import subprocess
+import xml.etree.ElementTree as ET
+
+import numpy as np
+import pytest
+
+import cfa_tool
+from cfa_tool.reporting.diagram import diagram_file, path_diagram
+
+from tests.conftest import THREE_FACTORS, simulate_cfa
+
+SVG = "{http://www.w3.org/2000/svg}"
+CHAR_EM = 0.62
+HALO = 1.5
+
+
+def text_boxes(svg: str) -> tuple[list[tuple[str, float, float, float, float]], float, float]:
+    """(text, left, top, right, bottom) of every text element in ``svg``, in the picture's units, with the
+    picture's width and height (translations of enclosing groups applied)."""
+    root = ET.fromstring(svg)
+    _, _, width, height = (float(v) for v in root.get("viewBox").split())
+    boxes = []
+
+    def walk(node, dx: float, dy: float) -> None:
+        move = re.fullmatch(r"translate\(([-\d.]+)(?:[ ,]([-\d.]+))?\)", node.get("transform", "") or "translate(0)")
+        dx, dy = dx + float(move.group(1)), dy + float(move.group(2) or 0)
+        if node.tag == SVG + "text":
+            size = float(node.get("font-size"))
+            text = "".join(node.itertext())
+            x, y = float(node.get("x")) + dx, float(node.get("y")) + dy
+            w = CHAR_EM * size * len(text)
+            left = {"start": x, "middle": x - w / 2, "end": x - w}[node.get("text-anchor", "start")]
+            halo = HALO if node.get("stroke") else 0.0
+            boxes.append((text, left - halo, y - 0.8 * size - halo, left + w + halo, y + 0.2 * size + halo))
+        for child in node:
+            walk(child, dx, dy)
+
+    walk(root, 0.0, 0.0)
+    return boxes, width, height
+
+
+def overlaps(svg: str) -> list[str]:
+    """Pairs of texts that overlap, and texts that leave the picture, in words."""
+    boxes, width, height = text_boxes(svg)
+    found = [f"{t!r} leaves the picture" for t, l, u, r, b in boxes if l < 0 or u < 0 or r > width or b > height]
+    for i, (t1, l1, u1, r1, b1) in enumerate(boxes):
+        for t2, l2, u2, r2, b2 in boxes[i + 1:]:
+            if min(r1, r2) - max(l1, l2) > 0.5 and min(b1, b2) - max(u1, u2) > 0.5:
+                found.append(f"{t1!r} overlaps {t2!r}")
+    return found
+
+
+@pytest.fixture(scope="module")
+def shapes(hs_data):
+    out = {"small": cfa_tool.fit(THREE_FACTORS + "covary x1, x4\ncovary x7, x9\n", hs_data),
+           "higher-order": cfa_tool.fit(THREE_FACTORS + "factor ability: visual, textual, speed\n", hs_data),
+           "groups": cfa_tool.fit(THREE_FACTORS, hs_data, group="school")}
+    # bifactor: a general factor on every item, three specific factors, all uncorrelated
+    loadings = np.zeros((12, 4))
+    loadings[:, 0] = 0.6
+    for i in range(12):
+        loadings[i, 1 + i // 4] = 0.5
+    data = simulate_cfa(loadings, np.eye(4), np.diag(np.full(12, 0.4)), 800, 5, [f"item{i + 1:02d}" for i in range(12)])
+    out["bifactor"] = cfa_tool.fit("factor general: item01..item12\nfactor part_a: item01..item04\n"
+                                   "factor part_b: item05..item08\nfactor part_c: item09..item12\n"
+                                   "scale latent by variance\nuncorrelated general, part_a, part_b, part_c\n", data)
+    # a method factor on the reverse-keyed items of two traits
+    loadings = np.zeros((10, 3))
+    loadings[:5, 0] = loadings[5:, 1] = 0.7
+    loadings[[1, 3, 6, 8], 2] = 0.4
+    phi = np.eye(3)
+    phi[0, 1] = phi[1, 0] = 0.4
+    data = simulate_cfa(loadings, phi, np.diag(np.full(10, 0.4)), 800, 6, [f"v{i + 1}" for i in range(10)])
+    out["method factor"] = cfa_tool.fit("factor trust: v1..v5\nfactor loyalty: v6..v10\nfactor wording: v2, v4, v7, v9\n"
+                                        "method wording\nuncorrelated wording, trust\nuncorrelated wording, loyalty\n"
+                                        "scale latent by variance\n", data)
+    # 60 items in six correlated factors, with two residual covariances
+    loadings = np.zeros((60, 6))
+    for i in range(60):
+        loadings[i, i // 10] = 0.7
+    names = [f"rating_{i + 1:02d}" for i in range(60)]
+    data = simulate_cfa(loadings, 0.5 * np.eye(6) + 0.5, np.diag(np.full(60, 0.5)), 1500, 7, names)
+    out["60 items"] = cfa_tool.fit("\n".join(f"factor part{j + 1}: " + ", ".join(names[10 * j:10 * j + 10]) for j in range(6))
+                                   + "\ncovary rating_03, rating_04\ncovary rating_15, rating_18\n", data)
+    return out
+
+
+LAYOUTS = ("small", "higher-order", "groups", "bifactor", "method factor", "60 items")
+
+
+@pytest.mark.parametrize("shape", LAYOUTS)
+def test_no_label_overlaps_another_or_leaves_the_picture(shapes, shape):
+    result = shapes[shape]
+    pictures = [(path_diagram(result, g), 1) for g in range(len(result.groups))] + [(diagram_file(result), len(result.groups))]
+    for svg, groups in pictures:
+        assert overlaps(svg) == []
+        root = ET.fromstring(svg)  # every factor drawn once per group, every item too
+        assert len(root.findall(f".//{SVG}ellipse")) == groups * len(result.latent)
+        assert len(root.findall(f".//{SVG}rect[@class='indicator']")) == groups * len(result.observed)
+
+
+def test_the_checker_finds_an_overlap():
+    svg = ('<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 100 50"><text x="10" y="20" font-size="10">abcdef</text>'
+           '<g transform="translate(20,0)"><text x="10" y="24" font-size="10">x</text></g>'
+           '<text x="95" y="40" font-size="10">far</text></svg>')
+    assert overlaps(svg) == ["'far' leaves the picture", "'abcdef' overlaps 'x'"]
