@@ -231,7 +231,8 @@ def _add_output_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--markdown", metavar="PATH", help="write the report as Markdown")
     p.add_argument("--docx", metavar="PATH", help="write the report as a Word document for a manuscript (numbered "
                    "tables, methods paragraph, path diagram)")
-    p.add_argument("--diagram", metavar="PATH", help="write the path diagram as SVG (or PNG when PATH ends in .png and a converter is installed)")
+    p.add_argument("--diagram", metavar="PATH", help="write the path diagram (every group) as SVG, or as PNG "
+                   "or PDF when PATH ends in .png or .pdf (needs the rsvg-convert program)")
     p.add_argument("--dpi", type=int, default=300, help="resolution of pictures (PNG diagram, Word figure; default 300)")
     p.add_argument("--tables", metavar="FOLDER", help="write every table as CSV and as LaTeX (booktabs) into FOLDER")
     p.add_argument("--standard-errors-from", dest="information", choices=Information.words(), default=None,
@@ -511,7 +512,6 @@ def _ordinal_arg(text: str | None):
 
 REPORT_FILES = (("--json", "json"), ("--html", "html"), ("--markdown", "markdown"), ("--docx", "docx"),
                 ("--diagram", "diagram"), ("--output", "output"))
-DIAGRAM_SUFFIXES = (".svg", ".png")
 
 
 def _inputs(args: argparse.Namespace) -> list[str]:
@@ -526,11 +526,11 @@ def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     """Every output of the run checked before any work (see cfa_tool.output_files)."""
     from cfa_tool.commands.common import require_suffix
     from cfa_tool.output_files import check_outputs
-    from cfa_tool.reporting.picture import png_converter, require_png_converter
+    from cfa_tool.reporting.picture import picture_format, png_converter, require_converter
 
     diagram = getattr(args, "diagram", None)
-    if diagram and diagram != "-" and Path(diagram).suffix.lower() not in DIAGRAM_SUFFIXES:
-        raise OptionError(f"--diagram: '{diagram}' must end in .svg or .png (the two formats the diagram is written in)")
+    if diagram:  # the format checked, and a missing converter said, before any work
+        require_converter(picture_format("--diagram", diagram))
     output = getattr(args, "output", None)
     require_suffix("--output", output, ".csv", "the simulated rows")
     outputs = [(option, getattr(args, attr, None)) for option, attr in REPORT_FILES]
@@ -539,8 +539,6 @@ def _check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
         from cfa_tool.output_files import check_new_file
 
         targets["--output"] = check_new_file(targets["--output"])
-    if diagram and diagram.lower().endswith(".png"):
-        require_png_converter()
     if getattr(args, "dpi", None) is not None:
         from cfa_tool import options as check
 
@@ -562,7 +560,6 @@ def _say(args: argparse.Namespace, text: str) -> None:
 
 def _report_files(args: argparse.Namespace, result) -> list[tuple[str, object, str]]:
     """(option, content, message) of every report file asked for, made before anything is written."""
-    from cfa_tool.reporting.picture import svg_to_png
     files: list[tuple[str, object, str]] = []
     if getattr(args, "json", None):
         from cfa_tool.reporting.json_report import to_json
@@ -581,10 +578,10 @@ def _report_files(args: argparse.Namespace, result) -> list[tuple[str, object, s
 
         files.append(("--docx", docx_report(result, args.dpi), f"Word report written to {args.docx}"))
     if getattr(args, "diagram", None):
-        from cfa_tool.reporting.diagram import path_diagram
+        from cfa_tool.reporting.diagram import diagram_file
+        from cfa_tool.reporting.picture import picture, picture_format
 
-        svg = path_diagram(result, legend=True)
-        content = svg_to_png(svg, args.dpi) if args.diagram.lower().endswith(".png") else svg
+        content = picture(diagram_file(result), picture_format("--diagram", args.diagram), args.dpi)
         files.append(("--diagram", content, f"Path diagram written to {args.diagram}"))
     return files
 

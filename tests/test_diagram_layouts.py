@@ -22,6 +22,7 @@ import cfa_tool
 from cfa_tool.reporting.diagram import diagram_file, path_diagram
 
 from tests.conftest import THREE_FACTORS, simulate_cfa
+from tests.test_cli import run
 
 SVG = "{http://www.w3.org/2000/svg}"
 CHAR_EM = 0.62
@@ -118,3 +119,47 @@ def test_the_checker_finds_an_overlap():
            '<g transform="translate(20,0)"><text x="10" y="24" font-size="10">x</text></g>'
            '<text x="95" y="40" font-size="10">far</text></svg>')
     assert overlaps(svg) == ["'far' leaves the picture", "'abcdef' overlaps 'x'"]
+
+
+CONVERTER = shutil.which("rsvg-convert") is not None
+
+
+@pytest.mark.skipif(not CONVERTER, reason="rsvg-convert (librsvg2-bin) is not installed")
+@pytest.mark.parametrize("suffix", [".pdf", ".png", ".svg"])
+def test_cli_writes_the_diagram_of_every_group_in_each_format(tmp_path, hs_data, suffix):
+    data = tmp_path / "hs.csv"
+    hs_data.to_csv(data)
+    model = tmp_path / "three.cfa"
+    model.write_text(THREE_FACTORS)
+    out = tmp_path / f"d{suffix}"
+    proc = run("fit", str(model), "--data", str(data), "--group", "school", "--diagram", str(out), "--dpi", "150")
+    assert proc.returncode == 0, proc.stderr
+    content = out.read_bytes()
+    if suffix == ".pdf":
+        assert content.startswith(b"%PDF-") and b"%%EOF" in content[-1024:]
+        # the page is the drawing at its natural size: 72 points per 96 SVG units (rsvg-convert's convention)
+        svg = diagram_file(cfa_tool.fit(THREE_FACTORS, hs_data, group="school"))
+        width, height = (float(v) for v in ET.fromstring(svg).get("viewBox").split()[2:])
+        box = re.search(rb"/MediaBox \[\s*0 0 ([\d.]+) ([\d.]+)\s*\]", content)
+        assert box is not None and abs(float(box.group(1)) - width * 0.75) < 1 and abs(float(box.group(2)) - height * 0.75) < 1
+    elif suffix == ".png":
+        assert content[:8] == b"\x89PNG\r\n\x1a\n"
+        assert content[25] == 2  # colour type 2: RGB without an alpha channel, so nothing is transparent (PNG spec, 11.2.2)
+    else:
+        svg = content.decode()
+        assert svg.count('class="group-name"') == 2 and "Group Pasteur" in svg and "Group Grant-White" in svg
+        assert svg.count('class="legend"') == 3 and overlaps(svg) == []
+
+
+def test_a_missing_converter_is_said_before_the_work(tmp_path, monkeypatch, capsys):
+    from cfa_tool import cli
+    from cfa_tool.reporting import picture
+
+    monkeypatch.setattr(picture.shutil, "which", lambda name: None)
+    for name in ("d.pdf", "d.png"):
+        assert cli.main(["demo", "--diagram", str(tmp_path / name)]) == 2
+        captured = capsys.readouterr()
+        assert "needs the rsvg-convert program" in captured.err and "Model fit" not in captured.out
+        assert not (tmp_path / name).exists()
+    assert cli.main(["demo", "--diagram", str(tmp_path / "d.eps")]) == 2
+    assert "must end in one of .svg, .png, .pdf" in capsys.readouterr().err
