@@ -96,7 +96,8 @@ def shapes(hs_data):
     names = [f"rating_{i + 1:02d}" for i in range(60)]
     data = simulate_cfa(loadings, 0.5 * np.eye(6) + 0.5, np.diag(np.full(60, 0.5)), 1500, 7, names)
     out["60 items"] = cfa_tool.fit("\n".join(f"factor part{j + 1}: " + ", ".join(names[10 * j:10 * j + 10]) for j in range(6))
-                                   + "\ncovary rating_03, rating_04\ncovary rating_15, rating_18\n", data)
+                                   + "\ncovary rating_03, rating_04\ncovary rating_15, rating_18\ncovary rating_16, rating_17\n"
+                                   "covary rating_14, rating_19\ncovary rating_18, rating_20\ncovary rating_29, rating_41\n", data)
     return out
 
 

@@ -97,6 +97,7 @@ class _Layout:
     width: float = 0.0
     height: float = 0.0
     banded: bool = False  # drawn in more than one band
+    drop_level: dict = field(default_factory=dict)  # depth of each arc between residuals drawn (see _nesting)
     table: list[tuple[str, str, str]] = field(default_factory=list)  # correlations listed instead of drawn
 
 
@@ -185,6 +186,8 @@ def _layout(result, rows, obs_set) -> _Layout:
     lay.width = width
     # correlations between factors of different bands go to a table above the drawing
     lay.banded = len(bands) > 1
+    lay.drop_level = _nesting([r.variables for r in rows if r.kind == "residual_covariance"
+                               and lay.band_of[r.variables[0]] == lay.band_of[r.variables[1]]], lay)
     for r in rows:
         if r.kind == "factor_covariance" and lay.banded or r.kind == "residual_covariance" and \
                 lay.band_of.get(r.variables[0]) != lay.band_of.get(r.variables[1]):
@@ -206,8 +209,7 @@ def _layout(result, rows, obs_set) -> _Layout:
             y += RESIDUAL_R + 20
         else:
             y += 48 + RESIDUAL_R
-        drops = [_drop(abs(lay.centre[r.variables[0]] - lay.centre[r.variables[1]])) for r in rows
-                 if r.kind == "residual_covariance" and all(lay.band_of.get(v) == b for v in r.variables)]
+        drops = [_drop(level) for key, level in lay.drop_level.items() if lay.band_of[key[0]] == b]
         y += max(drops, default=0.0) + (20 if drops else 0)
         if b < len(bands) - 1:
             y += BAND_GAP
@@ -232,9 +234,22 @@ def _table_columns(table, width: float) -> int:
     return max(1, int((width - 2 * MARGIN) // 260))
 
 
-def _drop(distance: float) -> float:
-    """Depth of an arc between two residuals this far apart."""
-    return 20 + 0.08 * distance
+def _drop(level: int) -> float:
+    """Depth of an arc between two residuals: one step deeper for every arc it spans or touches."""
+    return 6 + 18 * level
+
+
+def _nesting(pairs: list[tuple[str, ...]], lay: _Layout) -> dict[tuple[str, ...], int]:
+    """A level (1, 2, ...) for each arc between two residuals of one band: shorter arcs first, each one level
+    below every arc of its band whose span overlaps or touches its own, so that nested arcs and arcs that share
+    an item keep their labels apart."""
+    spans = {p: sorted((lay.centre[p[0]], lay.centre[p[1]])) for p in pairs}
+    levels: dict[tuple[str, ...], int] = {}
+    for p in sorted(pairs, key=lambda q: (spans[q][1] - spans[q][0], spans[q][0])):
+        (a, b), band = spans[p], lay.band_of[p[0]]
+        under = [levels[q] for q in levels if lay.band_of[q[0]] == band and spans[q][0] <= b and a <= spans[q][1]]
+        levels[p] = 1 + max(under, default=0)
+    return levels
 
 
 def path_diagram(result, group: int = 0, legend: bool = False) -> str:
@@ -355,10 +370,10 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
             a, b = r.variables
             (xa, _), (xb, _) = sorted((_residual_centre(a, lay), _residual_centre(b, lay)))
             y = _residual_centre(a, lay)[1] + RESIDUAL_R
-            drop = _drop(xb - xa)
+            drop = _drop(lay.drop_level[r.variables])
             bad = flagged(r.kind, r.variables)
             parts.append(_arc(xa, y, xb, y, y + drop * 2, "residual-covariance", bad))
-            parts.append(_label((xa + xb) / 2, y + drop + 14, unit(r.standardized, 2), problem=bad))
+            parts.append(_label((xa + xb) / 2, y + drop + 4, unit(r.standardized, 2), problem=bad))  # on the arc's lowest point
     # factors
     for f in latent:
         rx = _ellipse_rx(f)
