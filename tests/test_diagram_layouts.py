@@ -164,3 +164,23 @@ def test_a_missing_converter_is_said_before_the_work(tmp_path, monkeypatch, caps
         assert not (tmp_path / name).exists()
     assert cli.main(["demo", "--diagram", str(tmp_path / "d.eps")]) == 2
     assert "must end in one of .svg, .png, .pdf" in capsys.readouterr().err
+
+
+@pytest.mark.skipif(not CONVERTER, reason="rsvg-convert (librsvg2-bin) is not installed")
+def test_word_figures_fit_on_the_page(shapes):
+    import io
+
+    from docx import Document
+    from docx.shared import Inches
+
+    from cfa_tool.reporting.docx_report import docx_report
+
+    for shape, groups in (("small", 1), ("groups", 2), ("60 items", 1), ("method factor", 1)):
+        document = Document(io.BytesIO(docx_report(shapes[shape], 100)))
+        pictures = document.inline_shapes
+        assert len(pictures) == groups
+        for picture in pictures:  # the width of the text area, unless that would run off the page's foot
+            assert picture.width <= Inches(6.5) + 1 and picture.height <= Inches(8) + 1
+            assert abs(picture.width - Inches(6.5)) <= 1 or abs(picture.height - Inches(8)) <= 1
+    notes = [p.text for p in Document(io.BytesIO(docx_report(shapes["method factor"], 100))).paragraphs]
+    assert any("Grey ellipses: method factors" in text for text in notes)

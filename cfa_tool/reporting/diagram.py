@@ -65,6 +65,13 @@ LEGEND = ("Standardized values. Ellipses: factors; rectangles: observed items; c
           "correlations.")
 BLOCK_LEGEND = "Exploratory blocks: their rotated loadings of .30 or more in absolute value are drawn."
 
+METHOD_LEGEND = "Grey ellipses: method factors (a way of answering, not a trait)."
+
+
+def legend_text(result) -> str:
+    """The legend under a diagram in a report: ``LEGEND`` and, when the model has them, what grey ellipses mean."""
+    return LEGEND + (" " + METHOD_LEGEND if _method_factors(result) else "")
+
 
 def legend_lines(result) -> list[str]:
     """What the shapes, lines and colours of ``result``'s diagram mean, in lines for a standalone file."""
@@ -72,7 +79,7 @@ def legend_lines(result) -> list[str]:
              "circles: residual terms (share of variance not explained);",
              "dashed arrows: loadings fixed to set a factor's scale; curved double arrows: correlations."]
     if _method_factors(result):
-        lines.append("Grey ellipses: method factors (a way of answering, not a trait).")
+        lines.append(METHOD_LEGEND)
     if getattr(result, "problems", ()):
         lines.append("Red: a value that makes the solution impossible or doubtful (see the report).")
     return lines

@@ -73,3 +73,15 @@ def _convert(svg: str, kind: PictureFormat, dpi: int) -> bytes:
         if done.returncode != 0 or not out.exists():
             raise OptionError(f"the SVG-to-{kind.name} converter failed: {done.stderr.strip()[:200]}")
         return out.read_bytes()
+
+
+def page_fit(png: bytes, width: float = 6.5, height: float = 8.0) -> tuple[str, float]:
+    """Which side of a PNG picture to set, and to how many inches, so that it fills the width of a page's text
+    area without running off its foot: ``width`` by ``height`` inches, the text area of a letter page with margins
+    of one inch less room for the figure's caption and note.  Width and height are read from the
+    IHDR chunk (PNG specification, section 11.2.2)."""
+    pixels_wide = int.from_bytes(png[16:20], "big")
+    pixels_high = int.from_bytes(png[20:24], "big")
+    if pixels_high * width > pixels_wide * height:
+        return "height", height
+    return "width", width
