@@ -184,3 +184,44 @@ def test_word_figures_fit_on_the_page(shapes):
             assert abs(picture.width - Inches(6.5)) <= 1 or abs(picture.height - Inches(8)) <= 1
     notes = [p.text for p in Document(io.BytesIO(docx_report(shapes["method factor"], 100))).paragraphs]
     assert any("Grey ellipses: method factors" in text for text in notes)
+
+
+CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
+MEASURE = """<script>
+const out = [];
+for (const svg of document.querySelectorAll("svg")) {
+  svg.style.width = svg.getAttribute("width") + "px"; svg.style.minWidth = "0"; svg.style.height = "auto";
+  const frame = svg.getBoundingClientRect();
+  out.push([...svg.querySelectorAll("text")].map(t => {
+    const r = t.getBoundingClientRect();
+    return [t.textContent, r.left - frame.left, r.top - frame.top, r.right - frame.left, r.bottom - frame.top];
+  }));
+}
+document.getElementById("out").textContent = JSON.stringify(out);
+</script>"""
+
+
+@pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed (.ci/run installs it)")
+def test_in_a_browser_no_label_overlaps_and_the_estimate_is_on_the_safe_side(tmp_path, shapes):
+    """The browser lays out every text with its real font; the boxes it reports (glyph extents, without the
+    halo) must not overlap, must stay in the picture, and must be no wider than the test's estimate."""
+    import json
+
+    from tests.test_reports import _chromium
+
+    pictures = [diagram_file(shapes[shape]) for shape in LAYOUTS]
+    page = tmp_path / "layouts.html"
+    page.write_text("<!DOCTYPE html><html><body style='margin:0'>" + "".join(f"<div>{svg}</div>" for svg in pictures)
+                    + "<pre id='out'></pre>" + MEASURE + "</body></html>", encoding="utf-8")
+    dom = _chromium("--dump-dom", page.resolve().as_uri()).stdout
+    measured = json.loads(re.search(r"<pre id=\"out\">(.*?)</pre>", dom, re.S).group(1).replace("&amp;", "&"))
+    assert len(measured) == len(pictures)
+    for svg, real in zip(pictures, measured):
+        estimated, width, height = text_boxes(svg)
+        assert [t for t, *_ in real] == [t for t, *_ in estimated]
+        for (text, l, u, r, b), (_, el, _, er, _) in zip(real, estimated):
+            assert -0.5 <= l and r <= width + 0.5 and -0.5 <= u and b <= height + 0.5, text
+            assert r - l <= er - el, text  # the estimate is at least as wide as the real text
+        for i, (t1, l1, u1, r1, b1) in enumerate(real):
+            for t2, l2, u2, r2, b2 in real[i + 1:]:
+                assert not (min(r1, r2) - max(l1, l2) > 0.5 and min(b1, b2) - max(u1, u2) > 0.5), (t1, t2)
