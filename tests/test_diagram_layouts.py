@@ -89,6 +89,8 @@ def shapes(hs_data):
     out["method factor"] = cfa_tool.fit("factor trust: v1..v5\nfactor loyalty: v6..v10\nfactor wording: v2, v4, v7, v9\n"
                                         "method wording\nuncorrelated wording, trust\nuncorrelated wording, loyalty\n"
                                         "scale latent by variance\n", data)
+    out["method factor, correlated"] = cfa_tool.fit("factor trust: v1..v5\nfactor loyalty: v6..v10\n"
+                                                    "factor wording: v2, v4, v7, v9\nmethod wording\nscale latent by variance\n", data)
     # 60 items in six correlated factors, with two residual covariances
     loadings = np.zeros((60, 6))
     for i in range(60):
@@ -101,7 +103,7 @@ def shapes(hs_data):
     return out
 
 
-LAYOUTS = ("small", "higher-order", "groups", "bifactor", "method factor", "60 items")
+LAYOUTS = ("small", "higher-order", "groups", "bifactor", "method factor", "method factor, correlated", "60 items")
 
 
 @pytest.mark.parametrize("shape", LAYOUTS)
@@ -225,3 +227,10 @@ def test_in_a_browser_no_label_overlaps_and_the_estimate_is_on_the_safe_side(tmp
         for i, (t1, l1, u1, r1, b1) in enumerate(real):
             for t2, l2, u2, r2, b2 in real[i + 1:]:
                 assert not (min(r1, r2) - max(l1, l2) > 0.5 and min(b1, b2) - max(u1, u2) > 0.5), (t1, t2)
+
+
+def test_correlations_of_the_bottom_row_with_factors_above_are_listed_not_drawn(shapes):
+    svg = diagram_file(shapes["method factor, correlated"])
+    listed = re.findall(r'class="listed-correlation"[^>]*>([^<]*)<', svg)
+    assert [text.split(":")[0] for text in listed] == ["trust with wording", "loyalty with wording"]
+    assert svg.count('class="covariance') == 1  # trust with loyalty, drawn as an arc

@@ -16,7 +16,8 @@ circles then sit beside their items, so the lines from the bottom row reach
 the items unobstructed.  A model whose items do not fit in one row of
 ``MAX_WIDTH`` is drawn in bands of whole factors, one band under the other;
 its factor correlations, and residual correlations that would join two bands,
-are then listed at the top of the drawing instead of arcs crossing the bands.
+are then listed at the top of the drawing instead of arcs crossing the bands;
+so are correlations between a factor of the bottom row and one above it.
 Arcs between factors leave each ellipse at their own point of its top, so they
 do not all meet at one point.
 """
@@ -163,7 +164,8 @@ def _layout(result, rows, obs_set) -> _Layout:
         else:
             blocks.append([x])
     bands: list[list[str]] = [[]]
-    may_wrap = top == 1 and not lay.bottom
+    cross_loadings = any(sum(r.variables[1] == x for r in loadings) > 1 for x in observed)
+    may_wrap = top == 1 and not lay.bottom and not cross_loadings
     for block in blocks:
         used = sum(step[x] for x in bands[-1])
         if may_wrap and bands[-1] and used + sum(step[x] for x in block) > MAX_WIDTH - 2 * MARGIN:
@@ -196,9 +198,10 @@ def _layout(result, rows, obs_set) -> _Layout:
     lay.drop_level = _nesting([r.variables for r in rows if r.kind == "residual_covariance"
                                and lay.band_of[r.variables[0]] == lay.band_of[r.variables[1]]], lay)
     for r in rows:
-        if r.kind == "factor_covariance" and lay.banded or r.kind == "residual_covariance" and \
-                lay.band_of.get(r.variables[0]) != lay.band_of.get(r.variables[1]):
-            lay.table.append((r.kind, *r.variables))
+        a, b = r.variables[0], r.variables[-1]
+        if r.kind == "factor_covariance" and (lay.banded or (a in lay.bottom) != (b in lay.bottom)) or \
+                r.kind == "residual_covariance" and lay.band_of.get(a) != lay.band_of.get(b):
+            lay.table.append((r.kind, a, b))
     y = MARGIN + (18 + 16 * math.ceil(len(lay.table) / _table_columns(lay.table, width)) + 10 if lay.table else 0)
     for b in range(len(bands)):
         in_band = [f for f in latent if lay.band_of[f] == b and f not in lay.bottom]
@@ -328,7 +331,7 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
     parts.append(f'<g transform="translate(0,{head:.0f})">')
     if lay.table:
         parts.append(f'<text class="table-title" x="{MARGIN:.1f}" y="{MARGIN + 2:.1f}" font-size="11" font-weight="bold">'
-                     "Correlations not drawn as arcs (the model is drawn in bands)</text>")
+                     "Correlations not drawn as arcs</text>")
         columns = _table_columns(lay.table, lay.width)
         per = math.ceil(len(lay.table) / columns)
         for k, (kind, a, b) in enumerate(lay.table):
@@ -357,13 +360,10 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
     # covariances between factors (arcs above, or below for the bottom row) and between residuals (arcs below)
     ports = _ports(rows, lay)
     for r in rows:
-        if r.kind == "factor_covariance" and not lay.banded:
+        if r.kind == "factor_covariance" and (r.kind, *r.variables) not in lay.table:
             a, b = r.variables
             bad = flagged(r.kind, r.variables)
             below = a in lay.bottom and b in lay.bottom
-            if (a in lay.bottom) != (b in lay.bottom):
-                parts.extend(_side_arc(a, b, lay, unit(r.standardized, 2), bad))
-                continue
             (xa, ya), (xb, yb) = ports[(r.variables, a)], ports[(r.variables, b)]
             if xa > xb:
                 (xa, ya), (xb, yb) = (xb, yb), (xa, ya)
@@ -458,16 +458,6 @@ def _ports(rows, lay: _Layout) -> dict:
             dy = ELLIPSE_RY * math.sqrt(max(0.0, 1 - (dx / rx) ** 2))
             ports[(variables, f)] = (lay.centre[f] + dx, lay.y_of[f] + (dy if f in lay.bottom else -dy))
     return ports
-
-
-def _side_arc(a: str, b: str, lay: _Layout, text: str, problem: bool) -> list[str]:
-    """A correlation between a factor of the bottom row and one above: a curve along the left of both."""
-    (xa, ya), (xb, yb) = [(lay.centre[f] - _ellipse_rx(f), lay.y_of[f]) for f in (a, b)]
-    bend = min(xa, xb) - 60
-    look = f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if problem else 'stroke="#555" stroke-width="1.1"'
-    return [f'<path class="covariance{" problem" if problem else ""}" d="M{xa:.1f},{ya:.1f} C{bend:.1f},{ya:.1f} '
-            f'{bend:.1f},{yb:.1f} {xb:.1f},{yb:.1f}" fill="none" {look} marker-start="url(#head)" marker-end="url(#head)"/>',
-            _label(bend + 20, (ya + yb) / 2, text, problem=problem)]
 
 
 def _lift(distance: float) -> float:
