@@ -219,7 +219,7 @@ def _layout(result, rows, obs_set) -> _Layout:
             y += RESIDUAL_R + 20
         else:
             y += 48 + RESIDUAL_R
-        drops = [_drop(level) for key, level in lay.drop_level.items() if lay.band_of[key[0]] == b]
+        drops = [_drop(depth) for pair, depth in lay.drop_level.items() if lay.band_of[pair[0]] == b]
         y += max(drops, default=0.0) + (20 if drops else 0)
         if b < len(bands) - 1:
             y += BAND_GAP
