@@ -91,6 +91,9 @@ def shapes(hs_data):
                                         "scale latent by variance\n", data)
     out["method factor, correlated"] = cfa_tool.fit("factor trust: v1..v5\nfactor loyalty: v6..v10\n"
                                                     "factor wording: v2, v4, v7, v9\nmethod wording\nscale latent by variance\n", data)
+    from tests.test_exploratory_blocks import GEOMIN
+
+    out["exploratory block"] = cfa_tool.fit(GEOMIN, hs_data)
     # 60 items in six correlated factors, with two residual covariances
     loadings = np.zeros((60, 6))
     for i in range(60):
@@ -103,7 +106,8 @@ def shapes(hs_data):
     return out
 
 
-LAYOUTS = ("small", "higher-order", "groups", "bifactor", "method factor", "method factor, correlated", "60 items")
+LAYOUTS = ("small", "higher-order", "groups", "bifactor", "method factor", "method factor, correlated", "exploratory block",
+           "60 items")
 
 
 @pytest.mark.parametrize("shape", LAYOUTS)
@@ -135,7 +139,7 @@ def test_cli_writes_the_diagram_of_every_group_in_each_format(tmp_path, hs_data,
     model = tmp_path / "three.cfa"
     model.write_text(THREE_FACTORS)
     out = tmp_path / f"d{suffix}"
-    proc = run("fit", str(model), "--data", str(data), "--group", "school", "--diagram", str(out), "--dpi", "150")
+    proc = run("fit", str(model), "--data", str(data), "--group-column", "school", "--diagram", str(out), "--dpi", "150")
     assert proc.returncode == 0, proc.stderr
     content = out.read_bytes()
     if suffix == ".pdf":

@@ -81,6 +81,8 @@ def legend_lines(result) -> list[str]:
              "dashed arrows: loadings fixed to set a factor's scale; curved double arrows: correlations."]
     if _method_factors(result):
         lines.append(METHOD_LEGEND)
+    if getattr(result, "exploratory", ()):
+        lines.append(BLOCK_LEGEND)
     if getattr(result, "problems", ()):
         lines.append("Red: a value that makes the solution impossible or doubtful (see the report).")
     return lines
@@ -102,6 +104,7 @@ class _Layout:
     bottom: frozenset[str] = frozenset()  # general and method factors, drawn under the items
     side_residuals: bool = False
     order: list[str] = field(default_factory=list)
+    home: dict[str, str] = field(default_factory=dict)  # the factor each item is drawn under
     width: float = 0.0
     height: float = 0.0
     banded: bool = False  # drawn in more than one band
@@ -143,14 +146,12 @@ def _layout(result, rows, obs_set) -> _Layout:
     lay.bottom = _cross_factors(latent, children, obs_set, _method_factors(result))
     lay.side_residuals = bool(lay.bottom)
     top = max(level.values(), default=1)
-    # each item sits under its home factor: the first trait factor it loads on
+    # each item sits under its home factor: the trait factor with its largest loading (in size)
     home: dict[str, str] = {}
-    for r in loadings:
-        if r.variables[1] in obs_set and r.variables[0] not in lay.bottom:
-            home.setdefault(r.variables[1], r.variables[0])
-    for r in loadings:
+    for r in sorted(loadings, key=lambda r: (r.variables[0] not in lay.bottom, abs(r.standardized))):
         if r.variables[1] in obs_set:
-            home.setdefault(r.variables[1], r.variables[0])
+            home[r.variables[1]] = r.variables[0]
+    lay.home = home
     homes = [f for f in latent if f in home.values()]
     lay.order = sorted(observed, key=lambda x: (homes.index(home[x]) if x in home else len(homes), observed.index(x)))
     step = {x: _box_width(x) + (SIDE_GAP + 2 * RESIDUAL_R + BOX_GAP // 2 if lay.side_residuals else BOX_GAP)
@@ -339,10 +340,10 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
             text = f"{a} with {b}{'' if kind == 'factor_covariance' else ' (residuals)'}: {unit(r.standardized, 2)}"
             parts.append(_label(MARGIN + 260 * (k // per), MARGIN + 20 + 16 * (k % per), text, anchor="start",
                                 cls="listed-correlation", problem=flagged(kind, (a, b))))
-    # loadings
-    for r in rows:
-        if r.kind != "loading":
-            continue
+    # loadings: an item's home factor first, so that a cross-loading's value moves along its line if it would
+    # cover another
+    placed: list[tuple[float, float, float, float]] = []
+    for r in sorted((r for r in rows if r.kind == "loading"), key=lambda r: lay.home.get(r.variables[1]) != r.variables[0]):
         f, target = r.variables
         from_below = f in lay.bottom
         x1, y1 = centre[f], y_of[f] + (-ELLIPSE_RY if from_below else ELLIPSE_RY)
@@ -353,10 +354,11 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
         dashed = ' stroke-dasharray="5,4"' if not r.free else ""
         parts.append(f'<line class="loading" x1="{x1:.1f}" y1="{y1:.1f}" x2="{x2:.1f}" y2="{y2:.1f}" stroke="#333" '
                      f'stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
-        share = 0.8 if from_below else 0.72
-        lx, ly = x1 + share * (x2 - x1), y1 + share * (y2 - y1)
+        text = unit(r.standardized, 2)
+        shares = (0.8, 0.9, 0.7, 0.6) if from_below else (0.72, 0.6, 0.84, 0.5, 0.4)
+        lx, ly = _free_spot([(x1 + k * (x2 - x1), y1 + k * (y2 - y1) + 4) for k in shares], text, placed)
         impossible = result.groups[group].r_squared.get(target, 0.0) > 1.0  # R-squared above 1
-        parts.append(_label(lx, ly + 4, unit(r.standardized, 2), problem=impossible or flagged(r.kind, r.variables)))
+        parts.append(_label(lx, ly, text, problem=impossible or flagged(r.kind, r.variables)))
     # covariances between factors (arcs above, or below for the bottom row) and between residuals (arcs below)
     ports = _ports(rows, lay)
     for r in rows:
@@ -429,6 +431,23 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
                 parts.append(_label(cx + RESIDUAL_R + 3, cy + 4, text, size=10, anchor="start", problem=bad))
     parts.append("</g>")
     return lay.width, lay.height + head, parts
+
+
+def _free_spot(spots: list[tuple[float, float]], text: str, placed: list, size: int = 11) -> tuple[float, float]:
+    """The first of ``spots`` (centre, baseline) where a label ``text`` covers none of the ``placed`` boxes (the
+    first spot when none is free); its box is added to ``placed``.  Extent of a text as the layout tests estimate
+    it: ``TEXT_EM`` per character, 1 em tall, with its white halo."""
+    half = TEXT_EM * size * len(text) / 2 + 1.5
+
+    def box(x: float, y: float) -> tuple[float, float, float, float]:
+        return x - half, y - 0.8 * size - 1.5, x + half, y + 0.2 * size + 1.5
+
+    def free(b) -> bool:
+        return all(min(b[2], p[2]) <= max(b[0], p[0]) or min(b[3], p[3]) <= max(b[1], p[1]) for p in placed)
+
+    chosen = next((spot for spot in spots if free(box(*spot))), spots[0])
+    placed.append(box(*chosen))
+    return chosen
 
 
 def _residual_centre(name: str, lay: _Layout) -> tuple[float, float]:
