@@ -182,9 +182,6 @@ def progress(label: str):
     return bar()
 
 
-DIAGRAM_SUFFIXES = (".svg", ".png")
-
-
 def inputs_of(args: argparse.Namespace) -> list[str]:
     """Every file the command reads: models, data, calibration and validation files."""
     names = [getattr(args, "model", None), *(getattr(args, "models", None) or ()),
@@ -196,11 +193,11 @@ def inputs_of(args: argparse.Namespace) -> list[str]:
 def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     """Every output of the run checked before any work (see cfa_tool.output_files)."""
     from cfa_tool.output_files import check_outputs
-    from cfa_tool.reporting.picture import png_converter, require_png_converter
+    from cfa_tool.reporting.picture import picture_format, png_converter, require_converter
 
     diagram = getattr(args, "diagram", None)
-    if diagram and diagram != "-" and Path(diagram).suffix.lower() not in DIAGRAM_SUFFIXES:
-        raise OptionError(f"--diagram: '{diagram}' must end in .svg or .png (the two formats the diagram is written in)")
+    if diagram:  # the format checked, and a missing converter said, before any work
+        require_converter(picture_format("--diagram", diagram))
     output = getattr(args, "output", None)
     require_suffix("--output", output, ".csv", "the simulated rows")
     outputs = [(option, getattr(args, attr, None)) for option, attr in REPORT_FILES]
@@ -209,8 +206,6 @@ def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
         from cfa_tool.output_files import check_new_file
 
         targets["--output"] = check_new_file(targets["--output"])
-    if diagram and diagram.lower().endswith(".png"):
-        require_png_converter()
     if getattr(args, "dpi", None) is not None:
         from cfa_tool import options as check
 
@@ -251,7 +246,6 @@ def emit(args: argparse.Namespace, result, render=None) -> int:
 
 def fit_report_files(args: argparse.Namespace, result) -> list[tuple[str, object, str]]:
     """(option, content, message) of every report file asked for, made before anything is written."""
-    from cfa_tool.reporting.picture import svg_to_png
     files: list[tuple[str, object, str]] = []
     if getattr(args, "json", None):
         from cfa_tool.reporting.json_report import to_json
@@ -270,10 +264,10 @@ def fit_report_files(args: argparse.Namespace, result) -> list[tuple[str, object
 
         files.append(("--docx", docx_report(result, args.dpi), f"Word report written to {args.docx}"))
     if getattr(args, "diagram", None):
-        from cfa_tool.reporting.diagram import path_diagram
+        from cfa_tool.reporting.diagram import diagram_file
+        from cfa_tool.reporting.picture import picture, picture_format
 
-        svg = path_diagram(result, legend=True)
-        content = svg_to_png(svg, args.dpi) if args.diagram.lower().endswith(".png") else svg
+        content = picture(diagram_file(result), picture_format("--diagram", args.diagram), args.dpi)
         files.append(("--diagram", content, f"Path diagram written to {args.diagram}"))
     return files
 

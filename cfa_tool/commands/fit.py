@@ -29,7 +29,8 @@ def add_fit_outputs(p: argparse.ArgumentParser) -> None:
     p.add_argument("--markdown", metavar="PATH", help="write the report as Markdown")
     p.add_argument("--docx", metavar="PATH", help="write the report as a Word document for a manuscript (numbered "
                    "tables, methods paragraph, path diagram)")
-    p.add_argument("--diagram", metavar="PATH", help="write the path diagram as SVG (or PNG when PATH ends in .png and a converter is installed)")
+    p.add_argument("--diagram", metavar="PATH", help="write the path diagram (every group) as SVG, or as PNG "
+                   "or PDF when PATH ends in .png or .pdf (needs the rsvg-convert program)")
     p.add_argument("--dpi", type=int, default=300, help="resolution of pictures (PNG diagram, Word figure; default 300)")
     p.add_argument("--tables", metavar="FOLDER", help="write every table as CSV and as LaTeX (booktabs) into FOLDER")
     p.add_argument("--standard-errors-from", dest="information", choices=Information.words(), default=None,

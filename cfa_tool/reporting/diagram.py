@@ -4,13 +4,28 @@ Conventions of the field: factors as ellipses, observed indicators as
 rectangles, single-headed arrows for loadings (labelled with standardized
 values), curved double-headed arrows for covariances (labelled with
 correlations), and a small circle for each residual term, labelled with the
-share of the indicator's variance it leaves unexplained.  Layout: indicators in
-one row, each factor centred over its indicators, higher-order factors above
-the factors they explain.  Only ellipses are factors and only rectangles are
-indicators, so the drawing can be checked by counting them.
+share of the indicator's variance it leaves unexplained.  Only ellipses are
+factors and only rectangles are indicators, so the drawing can be checked by
+counting them.
+
+Layout, from the top: higher-order factors (one row per level), the factors
+of the traits each centred over its own items, the items, and, when the model
+has them, a bottom row for factors that load on items of several traits: the
+general factor of a bifactor model and method factors (grey).  Residual
+circles then sit beside their items, so the lines from the bottom row reach
+the items unobstructed.  A model whose items do not fit in one row of
+``MAX_WIDTH`` is drawn in bands of whole factors, one band under the other;
+its factor correlations, and residual correlations that would join two bands,
+are then listed at the top of the drawing instead of arcs crossing the bands;
+so are correlations between a factor of the bottom row and one above it.
+Arcs between factors leave each ellipse at their own point of its top, so they
+do not all meet at one point.
 """
 
 from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
 
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.numbers import unit
@@ -19,11 +34,19 @@ ROW_GAP = 130
 BOX_H = 34
 ELLIPSE_RY = 24
 RESIDUAL_R = 11
+BOX_GAP = 14  # between neighbouring items
+SIDE_GAP = 10  # between an item and its residual beside it
+MARGIN = 30.0
+MAX_WIDTH = 1000.0  # a band of items wider than this is broken into the next band (fits a page at about 6 pt)
+BAND_GAP = 40.0
+TEXT_EM = 0.62  # width of a character in ems, on the safe side for Helvetica and Arial (widest digits: 0.556)
 PROBLEM_COLOUR = "#b3261e"  # parts of the drawing that show a problem of the solution
+METHOD_FILL = "#e6e6e6"  # method factors: a way of answering, not a trait
+FACTOR_FILL = "#eef3fb"
 
 
 def _box_width(name: str) -> float:
-    return max(58.0, 7.4 * len(name) + 18.0)
+    return max(46.0, 7.4 * len(name) + 18.0)
 
 
 def _ellipse_rx(name: str) -> float:
@@ -37,36 +60,79 @@ def _label(x: float, y: float, text: str, size: int = 11, anchor: str = "middle"
             f'text-anchor="{anchor}"{colour} paint-order="stroke" stroke="#ffffff" stroke-width="3">{esc(text)}</text>')
 
 
-
 BLOCK_LOADING_DRAWN = 0.30  # rotated loadings of exploratory blocks drawn from this size on (common practice)
 LEGEND = ("Standardized values. Ellipses: factors; rectangles: observed items; circles: residual terms (share of "
           "variance not explained); dashed arrows: loadings fixed to set a factor's scale; curved double arrows: "
           "correlations.")
 BLOCK_LEGEND = "Exploratory blocks: their rotated loadings of .30 or more in absolute value are drawn."
 
+METHOD_LEGEND = "Grey ellipses: method factors (a way of answering, not a trait)."
 
-def path_diagram(result, group: int = 0, legend: bool = False) -> str:
-    """The model of ``result`` (one group's standardized values) as an SVG document string.  Elements whose
-    parameter is part of a problem of the solution (a negative residual variance, a correlation beyond
-    +/-1, ...) are drawn in red with the class ``problem``."""
-    label = result.groups[group].label
-    rows = [r for r in result.estimates if r.group == label] + _block_rows(result)
-    problems = getattr(result, "problems", ())
 
-    def flagged(kind: str, variables: tuple[str, ...]) -> bool:
-        return any(p.touches(kind, variables, label) for p in problems)
+def legend_text(result) -> str:
+    """The legend under a diagram in a report: ``LEGEND`` and, when the model has them, what grey ellipses mean."""
+    return LEGEND + (" " + METHOD_LEGEND if _method_factors(result) else "")
 
-    def stroke(kind: str, variables: tuple[str, ...], normal: str = "#333") -> str:
-        return f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if flagged(kind, variables) else f'stroke="{normal}"'
 
+def legend_lines(result) -> list[str]:
+    """What the shapes, lines and colours of ``result``'s diagram mean, in lines for a standalone file."""
+    lines = ["Standardized values. Ellipses: factors; rectangles: observed items;",
+             "circles: residual terms (share of variance not explained);",
+             "dashed arrows: loadings fixed to set a factor's scale; curved double arrows: correlations."]
+    if _method_factors(result):
+        lines.append(METHOD_LEGEND)
+    if getattr(result, "exploratory", ()):
+        lines.append(BLOCK_LEGEND)
+    if getattr(result, "problems", ()):
+        lines.append("Red: a value that makes the solution impossible or doubtful (see the report).")
+    return lines
+
+
+def _method_factors(result) -> frozenset[str]:
+    description = getattr(result, "description", None)
+    return frozenset(description.method_factors) if description is not None else frozenset()
+
+
+@dataclass
+class _Layout:
+    """Where everything of one group's drawing goes (computed once, drawn by ``_draw``)."""
+    centre: dict[str, float] = field(default_factory=dict)  # x of every factor and item
+    y_of: dict[str, float] = field(default_factory=dict)  # y of every factor's centre and every item box's top
+    widths: dict[str, float] = field(default_factory=dict)
+    band_of: dict[str, int] = field(default_factory=dict)
+    level: dict[str, int] = field(default_factory=dict)
+    bottom: frozenset[str] = frozenset()  # general and method factors, drawn under the items
+    side_residuals: bool = False
+    order: list[str] = field(default_factory=list)
+    home: dict[str, str] = field(default_factory=dict)  # the factor each item is drawn under
+    width: float = 0.0
+    height: float = 0.0
+    banded: bool = False  # drawn in more than one band
+    drop_level: dict = field(default_factory=dict)  # depth of each arc between residuals drawn (see _nesting)
+    table: list[tuple[str, str, str]] = field(default_factory=list)  # correlations listed instead of drawn
+
+
+def _cross_factors(latent, children, obs_set, methods) -> frozenset[str]:
+    """Method factors and general factors: first-order factors whose items belong to two or more other
+    first-order factors that have fewer items (the general factor of a bifactor model)."""
+    items = {f: {c for c in children[f] if c in obs_set} for f in latent}
+    first = [f for f in latent if items[f] and len(items[f]) == len(children[f])]
+    cross = {f for f in first if f in methods}
+    for f in first:
+        others = [g for g in first if g != f and g not in methods and items[g] & items[f]]
+        if len(others) >= 2 and all(len(items[g]) < len(items[f]) for g in others):
+            cross.add(f)
+    return frozenset(cross)
+
+
+def _layout(result, rows, obs_set) -> _Layout:
     observed, latent = list(result.observed), list(result.latent)
-    obs_set = set(observed)
     loadings = [r for r in rows if r.kind == "loading"]
     children: dict[str, list[str]] = {f: [] for f in latent}
     for r in loadings:
         children[r.variables[0]].append(r.variables[1])
-
-    level: dict[str, int] = {}
+    lay = _Layout()
+    level = lay.level
 
     def level_of(f: str, seen: frozenset = frozenset()) -> int:
         if f in level:
@@ -77,161 +143,359 @@ def path_diagram(result, group: int = 0, legend: bool = False) -> str:
 
     for f in latent:
         level_of(f)
+    lay.bottom = _cross_factors(latent, children, obs_set, _method_factors(result))
+    lay.side_residuals = bool(lay.bottom)
     top = max(level.values(), default=1)
-
-    # indicators ordered by the first factor they load on
-    first_factor = {}
-    for r in loadings:
+    # each item sits under its home factor: the trait factor with its largest loading (in size)
+    home: dict[str, str] = {}
+    for r in sorted(loadings, key=lambda r: (r.variables[0] not in lay.bottom, abs(r.standardized))):
         if r.variables[1] in obs_set:
-            first_factor.setdefault(r.variables[1], latent.index(r.variables[0]))
-    order = sorted(observed, key=lambda x: (first_factor.get(x, len(latent)), observed.index(x)))
-    margin = 30.0
-    x = margin
-    centre: dict[str, float] = {}
-    widths: dict[str, float] = {}
-    for name in order:
-        widths[name] = _box_width(name)
-        centre[name] = x + widths[name] / 2
-        x += widths[name] + 14
-    width = max(x - 14 + margin, 200.0)
+            home[r.variables[1]] = r.variables[0]
+    lay.home = home
+    homes = [f for f in latent if f in home.values()]
+    lay.order = sorted(observed, key=lambda x: (homes.index(home[x]) if x in home else len(homes), observed.index(x)))
+    step = {x: _box_width(x) + (SIDE_GAP + 2 * RESIDUAL_R + BOX_GAP // 2 if lay.side_residuals else BOX_GAP)
+            for x in lay.order}
+    lay.widths = {x: _box_width(x) for x in lay.order}
+    # bands of whole factors (only for models without higher-order and cross factors, whose lines would cross bands)
+    blocks: list[list[str]] = []
+    for x in lay.order:
+        if blocks and home.get(x) == home.get(blocks[-1][0]):
+            blocks[-1].append(x)
+        else:
+            blocks.append([x])
+    bands: list[list[str]] = [[]]
+    cross_loadings = any(sum(r.variables[1] == x for r in loadings) > 1 for x in observed)
+    may_wrap = top == 1 and not lay.bottom and not cross_loadings
+    for block in blocks:
+        used = sum(step[x] for x in bands[-1])
+        if may_wrap and bands[-1] and used + sum(step[x] for x in block) > MAX_WIDTH - 2 * MARGIN:
+            bands.append([])
+        bands[-1].extend(block)
+    for b, band in enumerate(bands):
+        for x in band:
+            lay.band_of[x] = b
+    for f in latent:
+        kids = [home_item for home_item in children[f] if home_item in lay.band_of]
+        lay.band_of[f] = min((lay.band_of[k] for k in kids), default=0)
+    # x positions: items band by band from the left margin, factors over their own items
+    for band in bands:
+        x = MARGIN
+        for name in band:
+            lay.centre[name] = x + lay.widths[name] / 2
+            x += step[name]
+    width = max((MARGIN + sum(step[x] for x in band) - BOX_GAP + MARGIN for band in bands), default=200.0)
     for lvl in range(1, top + 1):
         for f in [f for f in latent if level[f] == lvl]:
-            kids = [c for c in children[f] if c in centre]
-            own = [c for c in kids if c in obs_set and first_factor.get(c) == latent.index(f)] or kids
-            centre[f] = sum(centre[c] for c in own) / len(own) if own else width / 2
-    _spread_factors(latent, level, centre)
-    width = max(width, max((centre[f] + _ellipse_rx(f) + 50 for f in latent), default=0.0))
-    # room above the top row for the arcs of factor covariances
-    lifts = [_lift(abs(centre[r.variables[0]] - centre[r.variables[1]])) for r in rows if r.kind == "factor_covariance"]
-    arc_room = max(lifts, default=0.0) + 24
-    y_ind = margin + arc_room + top * ROW_GAP
-    y_of = {f: y_ind - level[f] * ROW_GAP + BOX_H / 2 for f in latent}
-    y_res = y_ind + BOX_H + 48
-    drops = [20 + 0.08 * abs(centre[r.variables[0]] - centre[r.variables[1]]) for r in rows if r.kind == "residual_covariance"]
-    height = y_res + RESIDUAL_R + max(drops, default=0.0) + 50
-    legend_y = height
-    legend_lines = ["Standardized values. Ellipses: factors; rectangles: observed items;",
-                    "circles: residual terms (share of variance not explained);",
-                    "dashed arrows: loadings fixed to set a factor's scale; curved double arrows: correlations."]
-    if problems:
-        legend_lines.append("Red: a value that makes the solution impossible or doubtful (see the report).")
-    if legend:  # a file that stands alone says what its shapes mean
-        height += 10 + 18 * len(legend_lines)
-        width = max(width, 640.0)
-    if label is not None:  # the group is named on its own diagram
-        margin_top = 26
-        height += margin_top
-    else:
-        margin_top = 0
+            kids = [c for c in children[f] if c in lay.centre]
+            own = [c for c in kids if home.get(c) == f] or kids
+            lay.centre[f] = sum(lay.centre[c] for c in own) / len(own) if own else width / 2
+    _spread_factors(latent, {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre,
+                    _disturbed(rows, latent, children))
+    width = max(width, max((lay.centre[f] + _ellipse_rx(f) + 50 for f in latent), default=0.0), 200.0)
+    lay.width = width
+    # correlations between factors of different bands go to a table above the drawing
+    lay.banded = len(bands) > 1
+    lay.drop_level = _nesting([r.variables for r in rows if r.kind == "residual_covariance"
+                               and lay.band_of[r.variables[0]] == lay.band_of[r.variables[1]]], lay)
+    for r in rows:
+        a, b = r.variables[0], r.variables[-1]
+        if r.kind == "factor_covariance" and (lay.banded or (a in lay.bottom) != (b in lay.bottom)) or \
+                r.kind == "residual_covariance" and lay.band_of.get(a) != lay.band_of.get(b):
+            lay.table.append((r.kind, a, b))
+    y = MARGIN + (18 + 16 * math.ceil(len(lay.table) / _table_columns(lay.table, width)) + 10 if lay.table else 0)
+    for b in range(len(bands)):
+        in_band = [f for f in latent if lay.band_of[f] == b and f not in lay.bottom]
+        arcs = [r for r in rows if r.kind == "factor_covariance" and not lay.banded and not any(v in lay.bottom for v in r.variables)]
+        spans = [abs(lay.centre[r.variables[0]] - lay.centre[r.variables[1]]) for r in arcs]
+        y += max((_lift(s) for s in spans), default=0.0) + (24 if arcs else 0)
+        levels = max((level[f] for f in in_band), default=1)
+        y_ind = y + levels * ROW_GAP
+        for f in in_band:
+            lay.y_of[f] = y_ind - level[f] * ROW_GAP + BOX_H / 2
+        for x in bands[b]:
+            lay.y_of[x] = y_ind
+        y = y_ind + BOX_H
+        if lay.side_residuals:
+            y += RESIDUAL_R + 20
+        else:
+            y += 48 + RESIDUAL_R
+        drops = [_drop(depth) for pair, depth in lay.drop_level.items() if lay.band_of[pair[0]] == b]
+        y += max(drops, default=0.0) + (20 if drops else 0)
+        if b < len(bands) - 1:
+            y += BAND_GAP
+    if lay.bottom:
+        y += ROW_GAP - 20
+        for f in lay.bottom:
+            lay.y_of[f] = y
+        bottom_arcs = [r for r in rows if r.kind == "factor_covariance" and all(v in lay.bottom for v in r.variables)]
+        y += ELLIPSE_RY + max((_lift(abs(lay.centre[r.variables[0]] - lay.centre[r.variables[1]])) for r in bottom_arcs),
+                              default=0.0)
+    lay.height = y + 40
+    return lay
 
+
+def _disturbed(rows, latent, children) -> set[str]:
+    """Factors explained by a higher-order factor: they get a disturbance circle at their right."""
+    below = {c for f in latent for c in children[f]}
+    return {r.variables[0] for r in rows if r.kind == "factor_variance" and r.variables[0] in below}
+
+
+def _table_columns(table, width: float) -> int:
+    return max(1, int((width - 2 * MARGIN) // 260))
+
+
+def _drop(level: int) -> float:
+    """Depth of an arc between two residuals: one step deeper for every arc it spans or touches."""
+    return 6 + 18 * level
+
+
+def _nesting(pairs: list[tuple[str, ...]], lay: _Layout) -> dict[tuple[str, ...], int]:
+    """A level (1, 2, ...) for each arc between two residuals of one band: shorter arcs first, each one level
+    below every arc of its band whose span overlaps or touches its own, so that nested arcs and arcs that share
+    an item keep their labels apart."""
+    spans = {p: sorted((lay.centre[p[0]], lay.centre[p[1]])) for p in pairs}
+    levels: dict[tuple[str, ...], int] = {}
+    for p in sorted(pairs, key=lambda q: (spans[q][1] - spans[q][0], spans[q][0])):
+        (a, b), band = spans[p], lay.band_of[p[0]]
+        under = [levels[q] for q in levels if lay.band_of[q[0]] == band and spans[q][0] <= b and a <= spans[q][1]]
+        levels[p] = 1 + max(under, default=0)
+    return levels
+
+
+def path_diagram(result, group: int = 0, legend: bool = False) -> str:
+    """The model of ``result`` (one group's standardized values) as an SVG document string.  Elements whose
+    parameter is part of a problem of the solution (a negative residual variance, a correlation beyond
+    +/-1, ...) are drawn in red with the class ``problem``."""
+    return _document(result, [group], legend)
+
+
+def diagram_file(result) -> str:
+    """The diagram a standalone file holds: every group's drawing, one under the other, each named, with the
+    legend once at the bottom."""
+    return _document(result, list(range(len(result.groups))), legend=True)
+
+
+def _document(result, groups: list[int], legend: bool) -> str:
+    drawings = [_draw(result, g) for g in groups]
+    lines = legend_lines(result) if legend else []
+    width = max([w for w, _, _ in drawings] + [2 * MARGIN + TEXT_EM * 11 * len(line) for line in lines])
+    height = sum(h for _, h, _ in drawings) + (10 + 18 * len(lines) if lines else 0)
+    labels = [result.groups[g].label for g in groups]
+    title = esc(result.model_name) + ("" if labels == [None] else " — group " + ", ".join(esc(str(x)) for x in labels))
     parts = [
         f'<svg xmlns="http://www.w3.org/2000/svg" class="path-diagram" viewBox="0 0 {width:.0f} {height:.0f}" '
         f'width="{width:.0f}" height="{height:.0f}" style="width:100%;height:auto;min-width:{min(width, 900):.0f}px" '
         f'font-family="Helvetica, Arial, sans-serif" role="img">',
-        f"<title>{esc(result.model_name)}{'' if label is None else ' — group ' + esc(label)}</title>",
+        f"<title>{title}</title>",
         '<defs><marker id="head" viewBox="0 0 10 10" refX="9" refY="5" markerWidth="7" markerHeight="7" orient="auto-start-reverse">'
         '<path d="M0,0 L10,5 L0,10 z" fill="#333"/></marker></defs>',
     ]
-    if label is not None:
-        parts.append(f'<text class="group-name" x="{margin:.1f}" y="20" font-size="15" font-weight="bold">'
+    if legend:
+        parts.append(f'<rect width="{width:.0f}" height="{height:.0f}" fill="#ffffff"/>')
+    y = 0.0
+    for _, h, body in drawings:
+        parts.append(f'<g transform="translate(0,{y:.0f})">')
+        parts.extend(body)
+        parts.append("</g>")
+        y += h
+    problems = getattr(result, "problems", ())
+    for k, line in enumerate(lines):
+        colour = f' fill="{PROBLEM_COLOUR}"' if problems and k == len(lines) - 1 else ""
+        parts.append(f'<text class="legend" x="{MARGIN:.1f}" y="{y + 16 + 18 * k:.1f}" font-size="11"{colour}>{esc(line)}</text>')
+    parts.append("</svg>")
+    return "\n".join(parts) + "\n"
+
+
+def _draw(result, group: int) -> tuple[float, float, list[str]]:
+    """(width, height, SVG elements) of one group's drawing."""
+    label = result.groups[group].label
+    rows = [r for r in result.estimates if r.group == label] + _block_rows(result)
+    problems = getattr(result, "problems", ())
+
+    def flagged(kind: str, variables: tuple[str, ...]) -> bool:
+        return any(p.touches(kind, variables, label) for p in problems)
+
+    def stroke(kind: str, variables: tuple[str, ...], normal: str = "#333") -> str:
+        return f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if flagged(kind, variables) else f'stroke="{normal}"'
+
+    latent = list(result.latent)
+    obs_set = set(result.observed)
+    lay = _layout(result, rows, obs_set)
+    centre, y_of = lay.centre, lay.y_of
+    methods = _method_factors(result)
+    parts: list[str] = []
+    head = 26.0 if label is not None else 0.0
+    if label is not None:  # the group is named on its own diagram
+        parts.append(f'<text class="group-name" x="{MARGIN:.1f}" y="20" font-size="15" font-weight="bold">'
                      f'Group {esc(label)}</text>')
-        parts.append(f'<g transform="translate(0,{margin_top})">')
-    # loadings
-    for r in loadings:
+    parts.append(f'<g transform="translate(0,{head:.0f})">')
+    if lay.table:
+        parts.append(f'<text class="table-title" x="{MARGIN:.1f}" y="{MARGIN + 2:.1f}" font-size="11" font-weight="bold">'
+                     "Correlations not drawn as arcs</text>")
+        columns = _table_columns(lay.table, lay.width)
+        per = math.ceil(len(lay.table) / columns)
+        for k, (kind, a, b) in enumerate(lay.table):
+            r = next(r for r in rows if r.kind == kind and r.variables == (a, b))
+            text = f"{a} with {b}{'' if kind == 'factor_covariance' else ' (residuals)'}: {unit(r.standardized, 2)}"
+            parts.append(_label(MARGIN + 260 * (k // per), MARGIN + 20 + 16 * (k % per), text, anchor="start",
+                                cls="listed-correlation", problem=flagged(kind, (a, b))))
+    # loadings: an item's home factor first, so that a cross-loading's value moves along its line if it would
+    # cover another
+    placed: list[tuple[float, float, float, float]] = []
+    for r in sorted((r for r in rows if r.kind == "loading"), key=lambda r: lay.home.get(r.variables[1]) != r.variables[0]):
         f, target = r.variables
-        x1, y1 = centre[f], y_of[f] + ELLIPSE_RY
+        from_below = f in lay.bottom
+        x1, y1 = centre[f], y_of[f] + (-ELLIPSE_RY if from_below else ELLIPSE_RY)
         if target in obs_set:
-            x2, y2 = centre[target], y_ind
+            x2, y2 = centre[target], y_of[target] + (BOX_H if from_below else 0)
         else:
             x2, y2 = centre[target], y_of[target] - ELLIPSE_RY
         dashed = ' stroke-dasharray="5,4"' if not r.free else ""
         parts.append(f'<line class="loading" x1="{x1:.1f}" y1="{y1:.1f}" x2="{x2:.1f}" y2="{y2:.1f}" stroke="#333" '
                      f'stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
-        lx, ly = x1 + 0.72 * (x2 - x1), y1 + 0.72 * (y2 - y1)
+        text = unit(r.standardized, 2)
+        shares = (0.8, 0.9, 0.7, 0.6) if from_below else (0.72, 0.6, 0.84, 0.5, 0.4)
+        lx, ly = _free_spot([(x1 + k * (x2 - x1), y1 + k * (y2 - y1) + 4) for k in shares], text, placed)
         impossible = result.groups[group].r_squared.get(target, 0.0) > 1.0  # R-squared above 1
-        parts.append(_label(lx, ly + 4, unit(r.standardized, 2), problem=impossible or flagged(r.kind, r.variables)))
-    # covariances between factors (arcs above) and between residuals (arcs below)
+        parts.append(_label(lx, ly, text, problem=impossible or flagged(r.kind, r.variables)))
+    # covariances between factors (arcs above, or below for the bottom row) and between residuals (arcs below)
+    ports = _ports(rows, lay)
     for r in rows:
-        if r.kind == "factor_covariance":
+        if r.kind == "factor_covariance" and (r.kind, *r.variables) not in lay.table:
             a, b = r.variables
-            xa, xb = sorted((centre[a], centre[b]))
-            y = min(y_of[a], y_of[b]) - ELLIPSE_RY
-            lift = _lift(xb - xa)
             bad = flagged(r.kind, r.variables)
-            parts.append(_arc(xa, y, xb, y, -lift, "covariance", bad))
-            parts.append(_label((xa + xb) / 2, y - lift / 2 - 4, unit(r.standardized, 2), problem=bad))
-        elif r.kind == "residual_covariance":
+            below = a in lay.bottom and b in lay.bottom
+            (xa, ya), (xb, yb) = ports[(r.variables, a)], ports[(r.variables, b)]
+            if xa > xb:
+                (xa, ya), (xb, yb) = (xb, yb), (xa, ya)
+            lift = _lift(abs(centre[a] - centre[b]))
+            y = min(ya, yb) if not below else max(ya, yb)
+            bend = lift if below else -lift
+            parts.append(_arc(xa, ya, xb, yb, y + bend * 2, "covariance", bad))
+            label_y = (ya + yb) / 4 + (y + bend * 2) / 2 + (14 if below else -4)  # apex of the curve
+            parts.append(_label((xa + xb) / 2, label_y, unit(r.standardized, 2), problem=bad))
+        elif r.kind == "residual_covariance" and lay.band_of[r.variables[0]] == lay.band_of[r.variables[1]]:
             a, b = r.variables
-            xa, xb = sorted((centre[a], centre[b]))
-            y = y_res + RESIDUAL_R
-            drop = 20 + 0.08 * (xb - xa)
+            (xa, _), (xb, _) = sorted((_residual_centre(a, lay), _residual_centre(b, lay)))
+            y = _residual_centre(a, lay)[1] + RESIDUAL_R
+            drop = _drop(lay.drop_level[r.variables])
             bad = flagged(r.kind, r.variables)
-            parts.append(_arc(xa, y, xb, y, drop, "residual-covariance", bad))
-            parts.append(_label((xa + xb) / 2, y + drop / 2 + 14, unit(r.standardized, 2), problem=bad))
+            parts.append(_arc(xa, y, xb, y, y + drop * 2, "residual-covariance", bad))
+            parts.append(_label((xa + xb) / 2, y + drop + 4, unit(r.standardized, 2), problem=bad))  # on the arc's lowest point
     # factors
     for f in latent:
         rx = _ellipse_rx(f)
         bad = flagged("factor_variance", (f,))
-        parts.append(f'<ellipse class="factor{" problem" if bad else ""}" cx="{centre[f]:.1f}" cy="{y_of[f]:.1f}" '
-                     f'rx="{rx:.1f}" ry="{ELLIPSE_RY}" fill="#eef3fb" '
+        fill = METHOD_FILL if f in methods else FACTOR_FILL
+        parts.append(f'<ellipse class="factor{" method" if f in methods else ""}{" problem" if bad else ""}" '
+                     f'cx="{centre[f]:.1f}" cy="{y_of[f]:.1f}" rx="{rx:.1f}" ry="{ELLIPSE_RY}" fill="{fill}" '
                      + (f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"/>' if bad else 'stroke="#1f3b73" stroke-width="1.5"/>'))
         parts.append(f'<text class="name" x="{centre[f]:.1f}" y="{y_of[f] + 4:.1f}" font-size="13" text-anchor="middle">{esc(f)}</text>')
-    # disturbances of factors below higher-order factors
+    # disturbances of factors explained by higher-order factors
+    children_of = {r.variables[1] for r in rows if r.kind == "loading"}
     for r in rows:
-        if r.kind == "factor_variance" and level.get(r.variables[0], 1) < top and any(
-                r.variables[0] in children[g] for g in latent):
+        if r.kind == "factor_variance" and r.variables[0] in children_of:
             f = r.variables[0]
             rx = _ellipse_rx(f)
             cx, cy = centre[f] + rx + 30, y_of[f]
-            parts.append(f'<circle class="residual" cx="{cx:.1f}" cy="{cy:.1f}" r="{RESIDUAL_R}" fill="#fff" stroke="#333"/>')
+            bad = flagged(r.kind, r.variables)
+            parts.append(f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" r="{RESIDUAL_R}" '
+                         f'fill="#fff" {stroke(r.kind, r.variables)}/>')
             parts.append(f'<line x1="{cx - RESIDUAL_R:.1f}" y1="{cy:.1f}" x2="{centre[f] + rx:.1f}" y2="{cy:.1f}" '
                          f'stroke="#333" marker-end="url(#head)"/>')
-            parts.append(_label(cx, cy - RESIDUAL_R - 5, unit(r.standardized, 2)))
+            parts.append(_label(cx, cy - RESIDUAL_R - 5, unit(r.standardized, 2), problem=bad))
     # indicators and their residuals
-    for name in order:
-        w = widths[name]
-        parts.append(f'<rect class="indicator" x="{centre[name] - w / 2:.1f}" y="{y_ind:.1f}" width="{w:.1f}" height="{BOX_H}" '
+    for name in lay.order:
+        w, top = lay.widths[name], y_of[name]
+        parts.append(f'<rect class="indicator" x="{centre[name] - w / 2:.1f}" y="{top:.1f}" width="{w:.1f}" height="{BOX_H}" '
                      f'fill="#ffffff" stroke="#333" stroke-width="1.3"/>')
-        parts.append(f'<text class="name" x="{centre[name]:.1f}" y="{y_ind + BOX_H / 2 + 4:.1f}" font-size="12" '
+        parts.append(f'<text class="name" x="{centre[name]:.1f}" y="{top + BOX_H / 2 + 4:.1f}" font-size="12" '
                      f'text-anchor="middle">{esc(name)}</text>')
         bad = flagged("residual_variance", (name,))
-        parts.append(f'<circle class="residual{" problem" if bad else ""}" cx="{centre[name]:.1f}" cy="{y_res:.1f}" '
+        cx, cy = _residual_centre(name, lay)
+        parts.append(f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" '
                      f'r="{RESIDUAL_R}" fill="#fff" {stroke("residual_variance", (name,))}/>')
-        parts.append(f'<line x1="{centre[name]:.1f}" y1="{y_res - RESIDUAL_R:.1f}" x2="{centre[name]:.1f}" y2="{y_ind + BOX_H:.1f}" '
-                     f'stroke="#333" marker-end="url(#head)"/>')
+        if lay.side_residuals:
+            parts.append(f'<line x1="{cx - RESIDUAL_R:.1f}" y1="{cy:.1f}" x2="{centre[name] + w / 2:.1f}" y2="{cy:.1f}" '
+                         f'stroke="#333" marker-end="url(#head)"/>')
+        else:
+            parts.append(f'<line x1="{cx:.1f}" y1="{cy - RESIDUAL_R:.1f}" x2="{cx:.1f}" y2="{top + BOX_H:.1f}" '
+                         f'stroke="#333" marker-end="url(#head)"/>')
         resid = next((r for r in rows if r.kind == "residual_variance" and r.variables[0] == name), None)
         if resid is not None:
-            parts.append(_label(centre[name] + RESIDUAL_R + 3, y_res + 4, unit(resid.standardized, 2), size=10, anchor="start",
-                                problem=bad))
-    if label is not None:
-        parts.append("</g>")
-    if legend:
-        for k, line in enumerate(legend_lines):
-            colour = f' fill="{PROBLEM_COLOUR}"' if problems and k == len(legend_lines) - 1 else ""
-            parts.append(f'<text class="legend" x="{margin:.1f}" y="{legend_y + margin_top + 16 + 18 * k:.1f}" '
-                         f'font-size="11"{colour}>{esc(line)}</text>')
-    parts.append("</svg>")
-    return "\n".join(parts) + "\n"
+            text = unit(resid.standardized, 2)
+            if lay.side_residuals:
+                parts.append(_label(cx, cy - RESIDUAL_R - 5, text, size=10, problem=bad))
+            else:
+                parts.append(_label(cx + RESIDUAL_R + 3, cy + 4, text, size=10, anchor="start", problem=bad))
+    parts.append("</g>")
+    return lay.width, lay.height + head, parts
+
+
+def _free_spot(spots: list[tuple[float, float]], text: str, placed: list, size: int = 11) -> tuple[float, float]:
+    """The first of ``spots`` (centre, baseline) where a label ``text`` covers none of the ``placed`` boxes (the
+    first spot when none is free); its box is added to ``placed``.  Extent of a text as the layout tests estimate
+    it: ``TEXT_EM`` per character, 1 em tall, with its white halo."""
+    half = TEXT_EM * size * len(text) / 2 + 1.5
+
+    def box(x: float, y: float) -> tuple[float, float, float, float]:
+        return x - half, y - 0.8 * size - 1.5, x + half, y + 0.2 * size + 1.5
+
+    def free(b) -> bool:
+        return all(min(b[2], p[2]) <= max(b[0], p[0]) or min(b[3], p[3]) <= max(b[1], p[1]) for p in placed)
+
+    chosen = next((spot for spot in spots if free(box(*spot))), spots[0])
+    placed.append(box(*chosen))
+    return chosen
+
+
+def _residual_centre(name: str, lay: _Layout) -> tuple[float, float]:
+    if lay.side_residuals:
+        return lay.centre[name] + lay.widths[name] / 2 + SIDE_GAP + RESIDUAL_R, lay.y_of[name] + BOX_H / 2
+    return lay.centre[name], lay.y_of[name] + BOX_H + 48
+
+
+def _ports(rows, lay: _Layout) -> dict:
+    """Where each arc between two factors leaves each ellipse: the arcs of one factor are spread over the top
+    of its ellipse (the bottom for the bottom row), the arc to the farthest factor on the left leftmost, so
+    arcs do not all meet at one point."""
+    ends: dict[str, list[tuple[float, tuple]]] = {}
+    for r in rows:
+        if r.kind == "factor_covariance":
+            a, b = r.variables
+            ends.setdefault(a, []).append((lay.centre[b] - lay.centre[a], r.variables))
+            ends.setdefault(b, []).append((lay.centre[a] - lay.centre[b], r.variables))
+    ports = {}
+    for f, arcs in ends.items():
+        rx = _ellipse_rx(f)
+        arcs.sort(key=lambda e: (e[0] > 0, -abs(e[0]) if e[0] <= 0 else abs(e[0])))
+        # left-going arcs: farthest first; right-going arcs: nearest first
+        n = len(arcs)
+        for k, (_, variables) in enumerate(arcs):
+            dx = 0.0 if n == 1 else -0.55 * rx + 1.1 * rx * k / (n - 1)
+            dy = ELLIPSE_RY * math.sqrt(max(0.0, 1 - (dx / rx) ** 2))
+            ports[(variables, f)] = (lay.centre[f] + dx, lay.y_of[f] + (dy if f in lay.bottom else -dy))
+    return ports
 
 
 def _lift(distance: float) -> float:
     """Height of a covariance arc over two factors this far apart."""
-    return 26 + 0.12 * distance
+    return 30 + 0.18 * distance
 
 
-def _arc(x1: float, y1: float, x2: float, y2: float, bend: float, cls: str, problem: bool = False) -> str:
-    cx, cy = (x1 + x2) / 2, y1 + bend * 2
+def _arc(x1: float, y1: float, x2: float, y2: float, control_y: float, cls: str, problem: bool = False) -> str:
     look = f'stroke="{PROBLEM_COLOUR}" stroke-width="2.5"' if problem else 'stroke="#555" stroke-width="1.1"'
-    return (f'<path class="{cls}{" problem" if problem else ""}" d="M{x1:.1f},{y1:.1f} Q{cx:.1f},{cy:.1f} {x2:.1f},{y2:.1f}" '
-            f'fill="none" {look} marker-start="url(#head)" marker-end="url(#head)"/>')
+    return (f'<path class="{cls}{" problem" if problem else ""}" d="M{x1:.1f},{y1:.1f} Q{(x1 + x2) / 2:.1f},{control_y:.1f} '
+            f'{x2:.1f},{y2:.1f}" fill="none" {look} marker-start="url(#head)" marker-end="url(#head)"/>')
 
 
-def _spread_factors(latent: list[str], level: dict[str, int], centre: dict[str, float]) -> None:
-    """Push apart factors of one level whose ellipses would overlap."""
-    for lvl in set(level.values()):
-        row = sorted((f for f in latent if level[f] == lvl), key=lambda f: centre[f])
-        for a, b in zip(row, row[1:]):
-            need = _ellipse_rx(a) + _ellipse_rx(b) + 16
+def _spread_factors(latent: list[str], row_of: dict, centre: dict[str, float], disturbed: set[str]) -> None:
+    """Push apart factors of one row whose ellipses (and disturbance circles) would overlap."""
+    for row in set(row_of.values()):
+        ordered = sorted((f for f in latent if row_of[f] == row), key=lambda f: centre[f])
+        for a, b in zip(ordered, ordered[1:]):
+            need = _ellipse_rx(a) + _ellipse_rx(b) + 16 + (2 * RESIDUAL_R + 40 if a in disturbed else 0)
             if centre[b] - centre[a] < need:
                 centre[b] = centre[a] + need
 

@@ -15,9 +15,9 @@ from docx.oxml.ns import qn
 from docx.shared import Inches, Pt, RGBColor
 
 from cfa_tool.reporting import tables as T
-from cfa_tool.reporting.diagram import LEGEND, path_diagram
+from cfa_tool.reporting.diagram import legend_text, path_diagram
 from cfa_tool.reporting.paragraph import methods_paragraph
-from cfa_tool.reporting.picture import DEFAULT_DPI, png_converter, svg_to_png
+from cfa_tool.reporting.picture import DEFAULT_DPI, page_fit, png_converter, svg_to_png
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
 from cfa_tool.reporting.text_formats import all_tables
 
@@ -157,8 +157,10 @@ def docx_report(result, dpi: int = DEFAULT_DPI) -> bytes:
         for g, group in enumerate(result.groups):
             where = "" if group.label is None else f", group {group.label}"
             _caption(document, f"Figure {g + 1}", f"Path diagram of the fitted model{where} (standardized values)")
-            document.add_picture(io.BytesIO(svg_to_png(path_diagram(result, g), dpi)), width=Inches(6.5))
-            _note(document, LEGEND + (" Elements in red show a problem of the solution." if notice is not None else ""))
+            png = svg_to_png(path_diagram(result, g), dpi)
+            side, inches = page_fit(png)
+            document.add_picture(io.BytesIO(png), **{side: Inches(inches)})
+            _note(document, legend_text(result) + (" Elements in red show a problem of the solution." if notice is not None else ""))
     document.add_heading("Cautions", level=2)
     document.add_paragraph(GUIDE_NOTE)
     document.add_paragraph(HIGH_STAKES_NOTE)

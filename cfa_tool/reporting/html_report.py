@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from cfa_tool.version import __version__
 from cfa_tool.reporting import tables as T
-from cfa_tool.reporting.diagram import BLOCK_LEGEND, LEGEND, path_diagram
+from cfa_tool.reporting.diagram import BLOCK_LEGEND, legend_text, path_diagram
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
@@ -110,7 +110,7 @@ def html_report(result) -> str:
         f'<p class="summary" id="methods-paragraph">{esc(methods_paragraph(result))}</p>',
         "<h2>Path diagram" + ("s" if result.multigroup else "") + "</h2>",
         *(f'<div class="diagram">{path_diagram(result, g)}</div>' for g in range(len(result.groups))),
-        f'<p class="note">{esc(LEGEND)}</p>',
+        f'<p class="note">{esc(legend_text(result))}</p>',
     ]
     if getattr(result, "exploratory", ()):
         sections.append(f'<p class="note">{esc(BLOCK_LEGEND)}</p>')

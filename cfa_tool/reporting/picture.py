@@ -1,11 +1,12 @@
-"""The path diagram as a picture for print: SVG converted to PNG by the rsvg-convert program (librsvg),
-at a chosen resolution on a white background."""
+"""The path diagram as a file: SVG as drawn, or converted by the rsvg-convert program (librsvg) to PNG at a
+chosen resolution or to PDF, both on a white background."""
 
 from __future__ import annotations
 
 import shutil
 import subprocess
 import tempfile
+from enum import Enum
 from pathlib import Path
 
 from cfa_tool.errors import OptionError
@@ -14,27 +15,73 @@ DEFAULT_DPI = 300  # print resolution journals ask for (common practice)
 SVG_DPI = 96  # the CSS pixel: SVG user units are drawn at this resolution
 
 
+class PictureFormat(Enum):
+    """The formats the diagram is written in, by the file's extension."""
+    SVG = ".svg"
+    PNG = ".png"
+    PDF = ".pdf"
+
+
+def picture_format(option: str, path: str) -> PictureFormat:
+    """The format a file name asks for (standard output, ``-``, gets SVG); any other extension is an error."""
+    if path == "-":
+        return PictureFormat.SVG
+    suffix = Path(path).suffix.lower()
+    for member in PictureFormat:
+        if member.value == suffix:
+            return member
+    known = ", ".join(m.value for m in PictureFormat)
+    raise OptionError(f"{option}: '{path}' must end in one of {known} (the formats the diagram is written in)")
+
+
 def png_converter() -> str | None:
     """The path of the converter program, or None when it is not installed."""
     return shutil.which("rsvg-convert")
 
 
-def require_png_converter() -> str:
-    converter = png_converter()
-    if converter is None:
-        raise OptionError("writing PNG needs the rsvg-convert program (Debian package librsvg2-bin); write .svg instead")
-    return converter
+def require_converter(kind: PictureFormat) -> None:
+    """An error, before any work is done, when ``kind`` needs the converter and it is not installed."""
+    if kind is not PictureFormat.SVG and png_converter() is None:
+        raise OptionError(f"writing {kind.name} needs the rsvg-convert program (Debian package librsvg2-bin); "
+                          "write .svg instead")
+
+
+def picture(svg: str, kind: PictureFormat, dpi: int = DEFAULT_DPI) -> str | bytes:
+    """``svg`` in the format ``kind``: the SVG text itself, or the bytes of a PNG (at ``dpi``) or a PDF."""
+    if kind is PictureFormat.SVG:
+        return svg
+    return _convert(svg, kind, dpi)
 
 
 def svg_to_png(svg: str, dpi: int = DEFAULT_DPI) -> bytes:
     """PNG bytes of ``svg`` at ``dpi`` dots per inch, white background."""
-    converter = require_png_converter()
+    return _convert(svg, PictureFormat.PNG, dpi)
+
+
+def _convert(svg: str, kind: PictureFormat, dpi: int) -> bytes:
+    """PNG or PDF bytes of ``svg``, white background.  A PDF keeps the drawing as vectors at its natural size
+    (one SVG unit is one CSS pixel, 1/96 inch); a PNG is scaled to ``dpi`` dots per inch."""
+    require_converter(kind)
+    converter = png_converter()
     with tempfile.TemporaryDirectory() as tmp:
         source = Path(tmp) / "diagram.svg"
         source.write_text(svg, encoding="utf-8")
-        out = Path(tmp) / "diagram.png"
-        done = subprocess.run([converter, "--zoom", f"{dpi / SVG_DPI:.6g}", "--background-color", "white",
+        out = Path(tmp) / f"diagram{kind.value}"
+        size = ["--zoom", f"{dpi / SVG_DPI:.6g}"] if kind is PictureFormat.PNG else []
+        done = subprocess.run([converter, "--format", kind.name.lower(), *size, "--background-color", "white",
                                "-o", str(out), str(source)], capture_output=True, text=True)
         if done.returncode != 0 or not out.exists():
-            raise OptionError(f"the SVG-to-PNG converter failed: {done.stderr.strip()[:200]}")
+            raise OptionError(f"the SVG-to-{kind.name} converter failed: {done.stderr.strip()[:200]}")
         return out.read_bytes()
+
+
+def page_fit(png: bytes, width: float = 6.5, height: float = 8.0) -> tuple[str, float]:
+    """Which side of a PNG picture to set, and to how many inches, so that it fills the width of a page's text
+    area without running off its foot: ``width`` by ``height`` inches, the text area of a letter page with margins
+    of one inch less room for the figure's caption and note.  Width and height are read from the
+    IHDR chunk (PNG specification, section 11.2.2)."""
+    pixels_wide = int.from_bytes(png[16:20], "big")
+    pixels_high = int.from_bytes(png[20:24], "big")
+    if pixels_high * width > pixels_wide * height:
+        return "height", height
+    return "width", width

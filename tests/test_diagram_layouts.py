@@ -1,0 +1,240 @@
+"""Every layout of the path diagram, checked for text that overlaps or leaves the picture.
+
+The extent of a text is estimated from its font size and number of characters, on the safe side: a
+character is taken as 0.62 em wide (the widest digits and lower-case letters of Helvetica and Arial are
+0.556 em, the average of lower-case text about 0.5 em: Adobe's Helvetica font metrics, the AFM file of
+the 35 standard PostScript fonts), the text as 1 em tall (0.8 em above the baseline, 0.2 em below), and
+the white halo drawn around value labels (stroke-width 3) adds 1.5 units on every side.  Two boxes
+overlap when they share more than a hair (0.5 units) in both directions.
+"""
+
+from __future__ import annotations
+
+import re
+import shutil
+import subprocess
+import xml.etree.ElementTree as ET
+
+import numpy as np
+import pytest
+
+import cfa_tool
+from cfa_tool.reporting.diagram import diagram_file, path_diagram
+
+from tests.conftest import THREE_FACTORS, simulate_cfa
+from tests.test_cli import run
+
+SVG = "{http://www.w3.org/2000/svg}"
+CHAR_EM = 0.62
+HALO = 1.5
+
+
+def text_boxes(svg: str) -> tuple[list[tuple[str, float, float, float, float]], float, float]:
+    """(text, left, top, right, bottom) of every text element in ``svg``, in the picture's units, with the
+    picture's width and height (translations of enclosing groups applied)."""
+    root = ET.fromstring(svg)
+    _, _, width, height = (float(v) for v in root.get("viewBox").split())
+    boxes = []
+
+    def walk(node, dx: float, dy: float) -> None:
+        move = re.fullmatch(r"translate\(([-\d.]+)(?:[ ,]([-\d.]+))?\)", node.get("transform", "") or "translate(0)")
+        dx, dy = dx + float(move.group(1)), dy + float(move.group(2) or 0)
+        if node.tag == SVG + "text":
+            size = float(node.get("font-size"))
+            text = "".join(node.itertext())
+            x, y = float(node.get("x")) + dx, float(node.get("y")) + dy
+            w = CHAR_EM * size * len(text)
+            left = {"start": x, "middle": x - w / 2, "end": x - w}[node.get("text-anchor", "start")]
+            halo = HALO if node.get("stroke") else 0.0
+            boxes.append((text, left - halo, y - 0.8 * size - halo, left + w + halo, y + 0.2 * size + halo))
+        for child in node:
+            walk(child, dx, dy)
+
+    walk(root, 0.0, 0.0)
+    return boxes, width, height
+
+
+def overlaps(svg: str) -> list[str]:
+    """Pairs of texts that overlap, and texts that leave the picture, in words."""
+    boxes, width, height = text_boxes(svg)
+    found = [f"{t!r} leaves the picture" for t, l, u, r, b in boxes if l < 0 or u < 0 or r > width or b > height]
+    for i, (t1, l1, u1, r1, b1) in enumerate(boxes):
+        for t2, l2, u2, r2, b2 in boxes[i + 1:]:
+            if min(r1, r2) - max(l1, l2) > 0.5 and min(b1, b2) - max(u1, u2) > 0.5:
+                found.append(f"{t1!r} overlaps {t2!r}")
+    return found
+
+
+@pytest.fixture(scope="module")
+def shapes(hs_data):
+    out = {"small": cfa_tool.fit(THREE_FACTORS + "covary x1, x4\ncovary x7, x9\n", hs_data),
+           "higher-order": cfa_tool.fit(THREE_FACTORS + "factor ability: visual, textual, speed\n", hs_data),
+           "groups": cfa_tool.fit(THREE_FACTORS, hs_data, group="school")}
+    # bifactor: a general factor on every item, three specific factors, all uncorrelated
+    loadings = np.zeros((12, 4))
+    loadings[:, 0] = 0.6
+    for i in range(12):
+        loadings[i, 1 + i // 4] = 0.5
+    data = simulate_cfa(loadings, np.eye(4), np.diag(np.full(12, 0.4)), 800, 5, [f"item{i + 1:02d}" for i in range(12)])
+    out["bifactor"] = cfa_tool.fit("factor general: item01..item12\nfactor part_a: item01..item04\n"
+                                   "factor part_b: item05..item08\nfactor part_c: item09..item12\n"
+                                   "scale latent by variance\nuncorrelated general, part_a, part_b, part_c\n", data)
+    # a method factor on the reverse-keyed items of two traits
+    loadings = np.zeros((10, 3))
+    loadings[:5, 0] = loadings[5:, 1] = 0.7
+    loadings[[1, 3, 6, 8], 2] = 0.4
+    phi = np.eye(3)
+    phi[0, 1] = phi[1, 0] = 0.4
+    data = simulate_cfa(loadings, phi, np.diag(np.full(10, 0.4)), 800, 6, [f"v{i + 1}" for i in range(10)])
+    out["method factor"] = cfa_tool.fit("factor trust: v1..v5\nfactor loyalty: v6..v10\nfactor wording: v2, v4, v7, v9\n"
+                                        "method wording\nuncorrelated wording, trust\nuncorrelated wording, loyalty\n"
+                                        "scale latent by variance\n", data)
+    out["method factor, correlated"] = cfa_tool.fit("factor trust: v1..v5\nfactor loyalty: v6..v10\n"
+                                                    "factor wording: v2, v4, v7, v9\nmethod wording\nscale latent by variance\n", data)
+    from tests.test_exploratory_blocks import GEOMIN
+
+    out["exploratory block"] = cfa_tool.fit(GEOMIN, hs_data)
+    # 60 items in six correlated factors, with two residual covariances
+    loadings = np.zeros((60, 6))
+    for i in range(60):
+        loadings[i, i // 10] = 0.7
+    names = [f"rating_{i + 1:02d}" for i in range(60)]
+    data = simulate_cfa(loadings, 0.5 * np.eye(6) + 0.5, np.diag(np.full(60, 0.5)), 1500, 7, names)
+    out["60 items"] = cfa_tool.fit("\n".join(f"factor part{j + 1}: " + ", ".join(names[10 * j:10 * j + 10]) for j in range(6))
+                                   + "\ncovary rating_03, rating_04\ncovary rating_15, rating_18\ncovary rating_16, rating_17\n"
+                                   "covary rating_14, rating_19\ncovary rating_18, rating_20\ncovary rating_29, rating_41\n", data)
+    return out
+
+
+LAYOUTS = ("small", "higher-order", "groups", "bifactor", "method factor", "method factor, correlated", "exploratory block",
+           "60 items")
+
+
+@pytest.mark.parametrize("shape", LAYOUTS)
+def test_no_label_overlaps_another_or_leaves_the_picture(shapes, shape):
+    result = shapes[shape]
+    pictures = [(path_diagram(result, g), 1) for g in range(len(result.groups))] + [(diagram_file(result), len(result.groups))]
+    for svg, groups in pictures:
+        assert overlaps(svg) == []
+        root = ET.fromstring(svg)  # every factor drawn once per group, every item too
+        assert len(root.findall(f".//{SVG}ellipse")) == groups * len(result.latent)
+        assert len(root.findall(f".//{SVG}rect[@class='indicator']")) == groups * len(result.observed)
+
+
+def test_the_checker_finds_an_overlap():
+    svg = ('<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 100 50"><text x="10" y="20" font-size="10">abcdef</text>'
+           '<g transform="translate(20,0)"><text x="10" y="24" font-size="10">x</text></g>'
+           '<text x="95" y="40" font-size="10">far</text></svg>')
+    assert overlaps(svg) == ["'far' leaves the picture", "'abcdef' overlaps 'x'"]
+
+
+CONVERTER = shutil.which("rsvg-convert") is not None
+
+
+@pytest.mark.skipif(not CONVERTER, reason="rsvg-convert (librsvg2-bin) is not installed")
+@pytest.mark.parametrize("suffix", [".pdf", ".png", ".svg"])
+def test_cli_writes_the_diagram_of_every_group_in_each_format(tmp_path, hs_data, suffix):
+    data = tmp_path / "hs.csv"
+    hs_data.to_csv(data)
+    model = tmp_path / "three.cfa"
+    model.write_text(THREE_FACTORS)
+    out = tmp_path / f"d{suffix}"
+    proc = run("fit", str(model), "--data", str(data), "--group-column", "school", "--diagram", str(out), "--dpi", "150")
+    assert proc.returncode == 0, proc.stderr
+    content = out.read_bytes()
+    if suffix == ".pdf":
+        assert content.startswith(b"%PDF-") and b"%%EOF" in content[-1024:]
+        # the page is the drawing at its natural size: 72 points per 96 SVG units (rsvg-convert's convention)
+        svg = diagram_file(cfa_tool.fit(THREE_FACTORS, hs_data, group="school"))
+        width, height = (float(v) for v in ET.fromstring(svg).get("viewBox").split()[2:])
+        box = re.search(rb"/MediaBox \[\s*0 0 ([\d.]+) ([\d.]+)\s*\]", content)
+        assert box is not None and abs(float(box.group(1)) - width * 0.75) < 1 and abs(float(box.group(2)) - height * 0.75) < 1
+    elif suffix == ".png":
+        assert content[:8] == b"\x89PNG\r\n\x1a\n"
+        assert content[25] == 2  # colour type 2: RGB without an alpha channel, so nothing is transparent (PNG spec, 11.2.2)
+    else:
+        svg = content.decode()
+        assert svg.count('class="group-name"') == 2 and "Group Pasteur" in svg and "Group Grant-White" in svg
+        assert svg.count('class="legend"') == 3 and overlaps(svg) == []
+
+
+def test_a_missing_converter_is_said_before_the_work(tmp_path, monkeypatch, capsys):
+    from cfa_tool import cli
+    from cfa_tool.reporting import picture
+
+    monkeypatch.setattr(picture.shutil, "which", lambda name: None)
+    for name in ("d.pdf", "d.png"):
+        assert cli.main(["demo", "--diagram", str(tmp_path / name)]) == 2
+        captured = capsys.readouterr()
+        assert "needs the rsvg-convert program" in captured.err and "Model fit" not in captured.out
+        assert not (tmp_path / name).exists()
+    assert cli.main(["demo", "--diagram", str(tmp_path / "d.eps")]) == 2
+    assert "must end in one of .svg, .png, .pdf" in capsys.readouterr().err
+
+
+@pytest.mark.skipif(not CONVERTER, reason="rsvg-convert (librsvg2-bin) is not installed")
+def test_word_figures_fit_on_the_page(shapes):
+    import io
+
+    from docx import Document
+    from docx.shared import Inches
+
+    from cfa_tool.reporting.docx_report import docx_report
+
+    for shape, groups in (("small", 1), ("groups", 2), ("60 items", 1), ("method factor", 1)):
+        document = Document(io.BytesIO(docx_report(shapes[shape], 100)))
+        pictures = document.inline_shapes
+        assert len(pictures) == groups
+        for picture in pictures:  # the width of the text area, unless that would run off the page's foot
+            assert picture.width <= Inches(6.5) + 1 and picture.height <= Inches(8) + 1
+            assert abs(picture.width - Inches(6.5)) <= 1 or abs(picture.height - Inches(8)) <= 1
+    notes = [p.text for p in Document(io.BytesIO(docx_report(shapes["method factor"], 100))).paragraphs]
+    assert any("Grey ellipses: method factors" in text for text in notes)
+
+
+CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
+MEASURE = """<script>
+const out = [];
+for (const svg of document.querySelectorAll("svg")) {
+  svg.style.width = svg.getAttribute("width") + "px"; svg.style.minWidth = "0"; svg.style.height = "auto";
+  const frame = svg.getBoundingClientRect();
+  out.push([...svg.querySelectorAll("text")].map(t => {
+    const r = t.getBoundingClientRect();
+    return [t.textContent, r.left - frame.left, r.top - frame.top, r.right - frame.left, r.bottom - frame.top];
+  }));
+}
+document.getElementById("out").textContent = JSON.stringify(out);
+</script>"""
+
+
+@pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed (.ci/run installs it)")
+def test_in_a_browser_no_label_overlaps_and_the_estimate_is_on_the_safe_side(tmp_path, shapes):
+    """The browser lays out every text with its real font; the boxes it reports (glyph extents, without the
+    halo) must not overlap, must stay in the picture, and must be no wider than the test's estimate."""
+    import json
+
+    from tests.test_reports import _chromium
+
+    pictures = [diagram_file(shapes[shape]) for shape in LAYOUTS]
+    page = tmp_path / "layouts.html"
+    page.write_text("<!DOCTYPE html><html><body style='margin:0'>" + "".join(f"<div>{svg}</div>" for svg in pictures)
+                    + "<pre id='out'></pre>" + MEASURE + "</body></html>", encoding="utf-8")
+    dom = _chromium("--dump-dom", page.resolve().as_uri()).stdout
+    measured = json.loads(re.search(r"<pre id=\"out\">(.*?)</pre>", dom, re.S).group(1).replace("&amp;", "&"))
+    assert len(measured) == len(pictures)
+    for svg, real in zip(pictures, measured):
+        estimated, width, height = text_boxes(svg)
+        assert [t for t, *_ in real] == [t for t, *_ in estimated]
+        for (text, l, u, r, b), (_, el, _, er, _) in zip(real, estimated):
+            assert -0.5 <= l and r <= width + 0.5 and -0.5 <= u and b <= height + 0.5, text
+            assert r - l <= er - el, text  # the estimate is at least as wide as the real text
+        for i, (t1, l1, u1, r1, b1) in enumerate(real):
+            for t2, l2, u2, r2, b2 in real[i + 1:]:
+                assert not (min(r1, r2) - max(l1, l2) > 0.5 and min(b1, b2) - max(u1, u2) > 0.5), (t1, t2)
+
+
+def test_correlations_of_the_bottom_row_with_factors_above_are_listed_not_drawn(shapes):
+    svg = diagram_file(shapes["method factor, correlated"])
+    listed = re.findall(r'class="listed-correlation"[^>]*>([^<]*)<', svg)
+    assert [text.split(":")[0] for text in listed] == ["trust with wording", "loyalty with wording"]
+    assert svg.count('class="covariance') == 1  # trust with loyalty, drawn as an arc
