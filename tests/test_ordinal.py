@@ -106,7 +106,7 @@ def test_ordinal_errors():
     many = data.assign(y1=np.arange(300) % 20)
     with pytest.raises(DataError, match="'y1' has 20 categories"):
         cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\n", many, ordinal="all")
-    with pytest.raises(OptionError, match="listwise deletion"):
+    with pytest.raises(OptionError, match="pairwise present rows"):
         cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\n", data, ordinal="all", missing="full-information")
 
 

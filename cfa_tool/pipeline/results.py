@@ -109,6 +109,16 @@ class DataSummary:
     kurtosis: tuple[float, ...] = ()  # excess kurtosis
     # ordinal items: per item, (answer value, rows giving it) for each category, in order
     categories: tuple[tuple[tuple[float, int], ...], ...] = ()
+    # ordinal items with pairwise present rows: (item, item, rows answering both) for each pair
+    pair_rows: tuple[tuple[str, str, int], ...] = ()
+
+    @property
+    def pair_range(self) -> tuple[int, int] | None:
+        """The smallest and largest number of rows a pair of items was computed from (pairwise present rows)."""
+        if not self.pair_rows:
+            return None
+        counts = [c for _, _, c in self.pair_rows]
+        return min(counts), max(counts)
 
     def to_dict(self) -> dict:
         out = {
@@ -125,6 +135,8 @@ class DataSummary:
         if self.categories:
             out["category_counts"] = {name: [{"value": v, "rows": c} for v, c in cats]
                                       for name, cats in zip(self.variables, self.categories)}
+        if self.pair_rows:
+            out["pair_rows"] = [{"items": [a, b], "rows": c} for a, b, c in self.pair_rows]
         return clean(out)
 
 

@@ -603,7 +603,10 @@ def correlation_table(result, group: int = 0) -> ReportTable | None:
     rows = [[f"{i + 1} {name}"] + [unit(r[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
             for i, name in enumerate(names) if i > 0]
     where = f" in group {g.label}" if g.label is not None else ""
-    return _table(f"correlations_{group}", f"Correlations of the items{where} (N = {g.data.n_obs})",
+    pairs = g.data.pair_range
+    rows_used = (f"N = {pairs[0]} to {pairs[1]} per pair" if pairs is not None and pairs[0] < pairs[1]
+                 else f"N = {g.data.n_obs}" if pairs is None else f"N = {pairs[0]}")
+    return _table(f"correlations_{group}", f"Correlations of the items{where} ({rows_used})",
                   [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows,
                   "For ordinal items: polychoric (and polyserial) correlations. With full-information estimation: "
                   "the saturated model's estimates from every answer." if (result.missing_data or
