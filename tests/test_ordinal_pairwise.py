@@ -138,7 +138,10 @@ def test_report_and_json_give_the_rows_of_each_pair(tmp_path, capsys):
     low, high = min(p["rows"] for p in pairs), max(p["rows"] for p in pairs)
     lower = both.to_numpy()[np.tril_indices(6, -1)]
     assert (low, high) == (lower.min(), lower.max())
-    assert f"from {low} rows" in text and f"to {high}" in text
+    assert f"from {low} rows" in text and f"to {high}" in text  # the note on missing answers
+    assert f"{low} to {high} rows per pair of items" in " ".join(text.split())  # the data line
+    assert main(["check", str(model), "--data", str(csv)]) == 0
+    assert "pairwise present rows" in capsys.readouterr().out
     result = cfa_tool.fit(ONE_FACTOR, data, ordinal="all")
     assert f"N = {low} to {high} per pair" in T.correlation_table(result).title
 

@@ -470,7 +470,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
           sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
           reference_group: str | None = None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
-    are complete, how many have gaps (used by full-information ML, the default) and each item's
+    are complete, how many have gaps (kept by default) and each item's
     coverage."""
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
@@ -507,5 +507,5 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     empty = int((~answered.any(axis=1)).sum())
     coverage = {name: float(v) for name, v in answered.mean(axis=0).items()} if len(answered) else {}
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - empty, empty, coverage,
-                       labels)
+                       labels, bool(ordinal_items))
 

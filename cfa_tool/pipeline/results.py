@@ -72,6 +72,7 @@ class CheckResult:
     empty: int  # rows that answer none (left out)
     coverage: dict  # share of rows answering each model variable
     groups: tuple[str, ...] | None
+    ordinal: bool = False  # ordinal items: rows with gaps are used through pairwise present rows
 
     def summary(self) -> str:
         spec = self.spec
@@ -80,7 +81,8 @@ class CheckResult:
         if self.groups:
             lines.append(f"Groups: {len(self.groups)} ({', '.join(self.groups)}).")
         lines.append(f"Rows: {self.rows} read, {self.complete} complete, {self.with_gaps} with missing answers "
-                     f"(used by full-information ML, the default), {self.empty} with no answer to any model variable.")
+                     f"({'used through pairwise present rows for ordinal items' if self.ordinal else 'used by full-information ML'}, "
+                     f"the default), {self.empty} with no answer to any model variable.")
         low = sorted((v, k) for k, v in self.coverage.items() if v < 1)
         if low:
             rest = "; every other item 100%" if len(low) < len(self.coverage) else ""

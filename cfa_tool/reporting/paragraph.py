@@ -182,7 +182,7 @@ def _sample_phrase(result) -> str:
     pairs = data.pair_range
     if pairs is not None and pairs[0] < result.n_obs:
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
-                 f"from the rows that answered both items ({pairs[0]} to {pairs[1]} rows per pair)")
+                 f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair")
     if data.rows_dropped:
         if full_information or pairs is not None:
             text += f"; {data.rows_dropped} of {data.rows_read} rows answered no model variable and were left out"

@@ -591,6 +591,15 @@ def category_table(result, group: int = 0) -> ReportTable | None:
                   values=(["Item"] + [f"Category {k + 1} rows" for k in range(width)], values))
 
 
+def pair_rows_phrase(data) -> str:
+    """For the data line: how many rows the pairs of ordinal items were computed from when rows with gaps
+    were kept (pairwise present rows); empty otherwise."""
+    pairs = data.pair_range
+    if pairs is None or pairs[0] == data.n_obs:
+        return ""
+    return f" ({pairs[0]} to {pairs[1]} rows per pair of items: each pair from the rows that answered both)"
+
+
 def correlation_table(result, group: int = 0) -> ReportTable | None:
     """The items' sample correlations (lower triangle), with the number of rows they come from."""
     names = result.observed
