@@ -1,5 +1,5 @@
 """Ordinal items with missing answers: every answer used (pairwise present rows) by default, listwise only when
-asked.  Check values: thresholds from each item's cumulative proportions (Olsson 1979, eq. 3, written out with
+asked.  Check values: thresholds from each item's cumulative proportions (Olsson 1979, written out with
 scipy.stats.norm); each polychoric correlation by maximising the bivariate-normal likelihood of the pair's table
 with scipy.optimize and scipy.stats.multivariate_normal on the rows that answered both items; the row counts
 by pandas; the standard errors against the Monte Carlo spread of seeded simulations whose population values are
@@ -12,7 +12,7 @@ import json
 import numpy as np
 import pandas as pd
 import pytest
-from scipy import optimize, stats
+from scipy import stats
 
 import cfa_tool
 from cfa_tool.cli import main
@@ -20,6 +20,7 @@ from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.errors import OptionError
 from cfa_tool.method import MissingData
 from cfa_tool.reporting import tables as T
+from tests.test_ordinal import scipy_polychoric
 
 LOADINGS = np.array([0.8, 0.7, 0.6, 0.75, 0.7, 0.65])  # population values of the simulations below
 CUTS = np.array([-1.0, 0.0, 0.9])
@@ -64,17 +65,8 @@ def test_thresholds_and_correlations_come_from_the_rows_that_answered():
     for i, j in ((1, 0), (4, 2), (5, 3)):
         both = data[[NAMES[i], NAMES[j]]].dropna()
         assert om.pair_counts[i, j] == len(both)
-        table = pd.crosstab(both[NAMES[i]], both[NAMES[j]]).to_numpy()
-        a = np.concatenate([[-8.0], om.thresholds[i], [8.0]])
-        b = np.concatenate([[-8.0], om.thresholds[j], [8.0]])
-
-        def negative(rho):
-            mvn = stats.multivariate_normal(mean=[0, 0], cov=[[1, rho], [rho, 1]])
-            F = np.array([[mvn.cdf([ai, bj]) for bj in b] for ai in a])
-            pi = F[1:, 1:] - F[:-1, 1:] - F[1:, :-1] + F[:-1, :-1]
-            return -np.sum(table * np.log(np.clip(pi, 1e-300, None)))
-
-        rho = optimize.minimize_scalar(negative, bounds=(-0.99, 0.99), method="bounded", options={"xatol": 1e-8}).x
+        table = pd.crosstab(both[NAMES[i]], both[NAMES[j]]).to_numpy()  # every category is used at these sizes
+        rho = scipy_polychoric(table, om.thresholds[i], om.thresholds[j])
         assert om.correlations[i, j] == pytest.approx(rho, abs=2e-4)
 
 
