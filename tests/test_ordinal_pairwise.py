@@ -107,6 +107,7 @@ def test_listwise_only_when_asked():
     assert pairwise.n_obs == 500 and listwise.n_obs == complete < 400
     assert listwise.method.missing is MissingData.LISTWISE and listwise.data.pair_rows == ()
     assert any(f"{500 - complete} of 500 rows had a missing answer" in w and "listwise" in w for w in listwise.warnings)
+    assert pairwise.missing_data["coverage"] == pytest.approx(data.notna().mean().to_dict())  # shares by pandas
     note = next(w for w in pairwise.warnings if "pairwise present rows" in w)
     assert f"only the {complete} complete rows" in note
     with pytest.raises(OptionError, match="full-information ML"):

@@ -270,8 +270,10 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
     if ordinal_items:
         result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
         labels = tuple(g.label for g in result.groups) if group is not None else None
-        return _described(replace(converged(result), warnings=tuple(notes) + result.warnings), spec, labels,
-                          ordinal_items)
+        summary = missing_summary(frame, spec.observed_names)  # the patterns and coverage, as for continuous items
+        gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
+        return _described(replace(converged(result), warnings=tuple(notes) + result.warnings,
+                                  missing_data=summary if gaps else None), spec, labels, ordinal_items)
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
     notes = missing_notes + notes
     groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)

@@ -461,9 +461,11 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                                          sample_covariance=mg.correlations, implied_covariance=rho,
                                          residual_correlations=mg.correlations - rho, sample_mean=np.zeros(p),
                                          implied_mean=None, normality=None, reliability=tuple(factors), htmt=tuple(htmt)))
+    per_group = [_pair_rows(m, list(range(p))) for m in moments]
+    total_pairs = tuple((a, b, sum(rows[k][2] for rows in per_group)) for k, (a, b, _) in enumerate(per_group[0]))
     total = DataSummary(moments[0].source, sum(m.rows_read for m in moments), dropped, n, table.observed,
                         tuple(float(v) for v in sum(m.n_obs * m.means for m in moments) / n),
-                        tuple(float(v) for v in moments[0].sds))
+                        tuple(float(v) for v in moments[0].sds), pair_rows=total_pairs)
     return fit_result(spec=spec, method=_fit_method(method, Items.ORDINAL, thresholds=True,
                                                     pairwise=all(m.pairwise for m in moments)), converged=est.converged,
                       iterations=est.iterations, message=est.message, theta=theta, n_obs=n, data=total,

@@ -11,7 +11,7 @@ that from the result's model description, never from a generic template.
 
 from __future__ import annotations
 
-from cfa_tool.method import FitTest, Items
+from cfa_tool.method import FitTest, Items, MissingData
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.numbers import unit
@@ -184,7 +184,7 @@ def _sample_phrase(result) -> str:
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
                  f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair")
     if data.rows_dropped:
-        if full_information or pairs is not None:
+        if full_information or result.method.missing is MissingData.PAIRWISE:
             text += f"; {data.rows_dropped} of {data.rows_read} rows answered no model variable and were left out"
         else:
             text += f"; {data.rows_dropped} of {data.rows_read} rows with missing answers were excluded listwise"
