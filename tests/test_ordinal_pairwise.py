@@ -149,6 +149,10 @@ def test_groups_use_every_answer_too():
         assert dict(((a, b), c) for a, b, c in g.data.pair_rows) == {
             (a, b): int((answered[a] * answered[b]).sum()) for i, a in enumerate(NAMES) for b in NAMES[i + 1:]}
     assert sum("in group east" in w and "pairwise present rows" in w for w in result.warnings) == 1
+    groups_json = result.to_dict()["groups"]
+    assert [p["rows"] for p in groups_json[0]["pair_rows"]] == [c for _, _, c in result.groups[0].data.pair_rows]
+    assert [p["rows"] for p in result.to_dict()["data"]["pair_rows"]] == [
+        a[2] + b[2] for a, b in zip(result.groups[0].data.pair_rows, result.groups[1].data.pair_rows)]
     listwise = cfa_tool.fit("factor f: y1..y6\n", data, ordinal="all", group="site", missing="listwise")
     assert listwise.method.missing is MissingData.LISTWISE
     assert listwise.n_obs == int(data[list(NAMES)].notna().all(axis=1).sum())

@@ -314,6 +314,7 @@ class FitResult(Presentable):
                     "normality": clean(g.normality.to_dict()) if g.normality is not None else None,
                     "reliability": g.reliability_dict(),
                     "diagnostics": g.diagnostics_dict(),
+                    **({"pair_rows": g.data.to_dict()["pair_rows"]} if g.data.pair_rows else {}),
                 }
                 for g in self.groups
             ]
