@@ -17,7 +17,7 @@ from scipy import stats
 import cfa_tool
 from cfa_tool.cli import main
 from cfa_tool.data.polychoric import ordinal_moments
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import DataError, OptionError
 from cfa_tool.method import MissingData
 from cfa_tool.reporting import tables as T
 from tests.test_ordinal import scipy_polychoric
@@ -156,3 +156,16 @@ def test_groups_use_every_answer_too():
     listwise = cfa_tool.fit("factor f: y1..y6\n", data, ordinal="all", group="site", missing="listwise")
     assert listwise.method.missing is MissingData.LISTWISE
     assert listwise.n_obs == int(data[list(NAMES)].notna().all(axis=1).sum())
+
+
+def test_pairs_the_gaps_leave_empty_are_one_line_errors():
+    data = _sample(200, 7, share=0.0)
+    apart = data.copy()
+    apart.loc[:99, "y1"] = np.nan  # y1 answered only in the second half, y2 only in the first
+    apart.loc[100:, "y2"] = np.nan
+    with pytest.raises(DataError, match="0 rows answered both 'y1' and 'y2'"):
+        cfa_tool.fit(ONE_FACTOR, apart, ordinal="all")
+    # a continuous item beside them that varies, but not among the rows that answered y1
+    mixed = apart.drop(columns="y2").assign(x=np.where(np.arange(200) < 100, np.arange(200) / 10, 1.0))
+    with pytest.raises(DataError, match="'x' has the same value in every row that also answered 'y1'"):
+        cfa_tool.fit("factor f: y1, y3, y4, y5, y6, x\n", mixed, ordinal=["y1", "y3", "y4", "y5", "y6"])

@@ -205,11 +205,14 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         sds = np.array([data[present[:, j], j].std() for j in range(p)])
     z_all = (data - means) / np.where(sds > 0, sds, 1.0)
 
-    def standardized(column: int, rows: np.ndarray) -> np.ndarray:
+    def standardized(column: int, rows: np.ndarray, other: int) -> np.ndarray:
         """A continuous item standardized on the rows of a pair (by its own mean and SD there)."""
         if rows.all():
             return z_all[:, column]
         x = data[rows, column]
+        if x.std() == 0:
+            raise DataError(f"{source}{where}: column '{printable(names[column])}' has the same value in every row that "
+                            f"also answered '{printable(names[other])}', so their correlation cannot be estimated")
         return (x - x.mean()) / x.std()
 
     for j, name in enumerate(names):
@@ -257,7 +260,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         scale = n / int(pair_counts[i, j])  # 1 without gaps
         ci, cj = names[i] in continuous, names[j] in continuous
         if ci and cj:
-            zi, zj = standardized(i, both), standardized(j, both)
+            zi, zj = standardized(i, both, j), standardized(j, both, i)
             r = float(np.mean(zi * zj))
             R[i, j] = R[j, i] = r
             influence[both, k] = scale * (zi * zj - r * (zi**2 + zj**2) / 2)
@@ -265,7 +268,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         if ci or cj:
             c, o = (i, j) if ci else (j, i)
             x = data[both, c]
-            rho = polyserial_pair(standardized(c, both), codes[both, o], thresholds[o])
+            rho = polyserial_pair(standardized(c, both, o), codes[both, o], thresholds[o])
             R[i, j] = R[j, i] = rho
             score_o, moments_correction, info_rr, info_rt = _polyserial_parts(x, codes[both, o], thresholds[o], rho)
             score, correction = np.zeros(n), np.zeros(n)
