@@ -98,6 +98,10 @@ class MissingData(Choice):
 
     FULL_INFORMATION = ("full-information", "full information", "full-information maximum likelihood")
     LISTWISE = ("listwise", "listwise deletion", "listwise deletion")
+    # ordinal items (the tool's default for them): thresholds from the rows answering each item, each
+    # correlation from the rows answering both items
+    PAIRWISE = ("pairwise", "pairwise present rows",
+                "all available answers (each correlation from the rows that answered both items)", False)
 
 
 class WeightKind(Choice):

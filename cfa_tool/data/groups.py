@@ -65,15 +65,17 @@ def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], sour
 
 
 def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
-                          reference: str | None = None) -> tuple[list[tuple[str, object]], int]:
-    """Per-group thresholds and polychoric correlations, every group on the same categories."""
+                          reference: str | None = None, pairwise: bool = False) -> tuple[list[tuple[str, object]], int]:
+    """Per-group thresholds and polychoric correlations, every group on the same categories (``pairwise``:
+    from every answer, see :func:`cfa_tool.data.polychoric.ordinal_moments`)."""
     from cfa_tool.data.polychoric import ordinal_moments, shared_levels
 
     labels = group_labels(frame, column, source, reference)
     keys = frame[column].map(lambda v: None if pd.isna(v) else _label(v))
     parts = [frame.loc[(keys == label).to_numpy()] for label in labels]
-    levels = shared_levels(parts, names, source)
-    out = [(label, ordinal_moments(part, names, source, levels=levels, where=f" (group '{label}' of {column})"))
+    levels = shared_levels(parts, names, source, pairwise)
+    out = [(label, ordinal_moments(part, names, source, levels=levels, where=f" (group '{label}' of {column})",
+                                   pairwise=pairwise))
            for label, part in zip(labels, parts)]
     return out, int(keys.isna().sum())
 

@@ -52,6 +52,17 @@ class OrdinalMoments:
     continuous: frozenset = frozenset()
     #: asymptotic covariance of sqrt(N)(s - sigma) for s = (all thresholds, then the correlations)
     joint_gamma: np.ndarray | None = field(repr=False, default=None)
+    #: with pairwise present rows: rows answering both items (diagonal: each item); None with listwise deletion
+    pair_counts: np.ndarray | None = field(repr=False, default=None)
+
+    @property
+    def pairwise(self) -> bool:
+        return self.pair_counts is not None
+
+    @property
+    def gaps(self) -> bool:
+        """Whether some analysed row missed an answer (pairwise present rows with gaps)."""
+        return self.pair_counts is not None and bool((self.pair_counts < self.n_obs).any())
 
     @property
     def stacked_thresholds(self) -> np.ndarray:
@@ -127,53 +138,95 @@ def polyserial_pair(z: np.ndarray, codes: np.ndarray, tau: np.ndarray) -> float:
     return float(optimize.minimize_scalar(negative, bounds=(-0.999, 0.999), method="bounded", options={"xatol": 1e-10}).x)
 
 
-def _polyserial_influence(x: np.ndarray, codes: np.ndarray, tau: np.ndarray, tau_if: np.ndarray, rho: float) -> np.ndarray:
-    """IF of a polyserial correlation, corrected for the thresholds and the continuous item's mean and SD;
-    the expected derivatives of the score are averaged over the sample by central differences."""
+def _polyserial_parts(x: np.ndarray, codes: np.ndarray, tau: np.ndarray,
+                      rho: float) -> tuple[np.ndarray, np.ndarray, float, np.ndarray]:
+    """The parts of a polyserial correlation's influence function on the rows ``x``, ``codes`` it was
+    estimated from: the case's score s, the correction m for the continuous item's mean and SD (estimated on
+    the same rows), the expected information I_rr and the cross-information I_rt with each threshold, so that
+    IF = (s - IF(tau) I_rt - m) / I_rr.  The expected derivatives of the score are averaged over the rows by
+    central differences."""
     mean, sd = x.mean(), x.std()
     z = (x - mean) / sd
     score = _polyserial_scores(z, codes, tau, rho)
     h = 1e-5
     info_rr = -np.mean(_polyserial_scores(z, codes, tau, rho + h) - _polyserial_scores(z, codes, tau, rho - h)) / (2 * h)
-    correction = np.zeros_like(x)
+    info_rt = np.zeros(len(tau))
     for c in range(len(tau)):
         up, down = tau.copy(), tau.copy()
         up[c] += h
         down[c] -= h
-        info = -np.mean(_polyserial_scores(z, codes, up, rho) - _polyserial_scores(z, codes, down, rho)) / (2 * h)
-        correction += info * tau_if[:, c]
+        info_rt[c] = -np.mean(_polyserial_scores(z, codes, up, rho) - _polyserial_scores(z, codes, down, rho)) / (2 * h)
     info_mu = -np.mean(_polyserial_scores((x - mean - h) / sd, codes, tau, rho)
                        - _polyserial_scores((x - mean + h) / sd, codes, tau, rho)) / (2 * h)
     info_sd = -np.mean(_polyserial_scores((x - mean) / (sd + h), codes, tau, rho)
                        - _polyserial_scores((x - mean) / (sd - h), codes, tau, rho)) / (2 * h)
-    correction += info_mu * (x - mean) + info_sd * ((x - mean) ** 2 - sd**2) / (2 * sd)
-    return (score - correction) / info_rr
+    moments_correction = info_mu * (x - mean) + info_sd * ((x - mean) ** 2 - sd**2) / (2 * sd)
+    return score, moments_correction, float(info_rr), info_rt
 
 
 def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                     continuous: frozenset[str] = frozenset(), levels: dict[str, tuple[float, ...]] | None = None,
-                    where: str = "") -> OrdinalMoments:
+                    where: str = "", pairwise: bool = False) -> OrdinalMoments:
     """Thresholds and correlations of ordinal items (and of any ``continuous`` items beside them).
 
     ``levels``: the categories every group must use (with groups, so that thresholds
-    compare); ``where`` names the group in messages."""
+    compare); ``where`` names the group in messages.
+
+    ``pairwise``: rows with missing answers are kept (pairwise present): each item's thresholds (and a
+    continuous item's mean and SD) come from the rows that answered it, each correlation from the rows
+    that answered both items.  The asymptotic covariance is then that of the stacked estimating
+    equations (each statistic's casewise score is zero on rows that cannot inform it; the M-estimation
+    sandwich, e.g. Stefanski & Boos 2002), which for a statistic estimated on N_s of the N rows scales
+    its casewise influence by N / N_s; without gaps it is the complete-data one exactly.  Otherwise
+    only the complete rows are used (listwise deletion)."""
     values = numeric_columns(frame, names, source)
-    complete = ~np.isnan(values).any(axis=1)
-    data = values[complete]
+    answered = ~np.isnan(values)
+    keep = answered.any(axis=1) if pairwise else answered.all(axis=1)
+    data = values[keep]
+    present = answered[keep]
     n, p = data.shape
     if n <= p:
-        raise DataError(f"{source}{where}: {n} complete {'row' if n == 1 else 'rows'} for {p} items; more rows are needed")
-    codes = np.zeros_like(data, dtype=int)
+        kind = "with an answer" if pairwise else "complete"
+        raise DataError(f"{source}{where}: {n} {kind} {'row' if n == 1 else 'rows'} for {p} items; more rows are needed")
+    pair_counts = present.T.astype(np.int64) @ present.astype(np.int64)  # rows answering both items (diagonal: each)
+    if pairwise and (pair_counts < 2).any():
+        i, j = np.argwhere(pair_counts < 2)[0]
+        which = (f"item '{printable(names[i])}'" if i == j
+                 else f"both '{printable(names[i])}' and '{printable(names[j])}'")
+        raise DataError(f"{source}{where}: {int(pair_counts[i, j])} rows answered {which}, so "
+                        f"{'its thresholds' if i == j else 'their correlation'} cannot be estimated; drop an item or "
+                        f"collect more answers")
+    codes = np.where(present, 0, -1)  # -1: no answer
     categories, thresholds, threshold_if = [], [], []
+    if present.all():  # the complete-data formulas, so that a fit without gaps is the listwise one to the last digit
+        means, sds = data.mean(axis=0), data.std(axis=0)
+    else:
+        means = np.array([data[present[:, j], j].mean() for j in range(p)])
+        sds = np.array([data[present[:, j], j].std() for j in range(p)])
+    z_all = (data - means) / np.where(sds > 0, sds, 1.0)
+
+    def standardized(column: int, rows: np.ndarray, other: int) -> np.ndarray:
+        """A continuous item standardized on the rows of a pair (by its own mean and SD there)."""
+        if rows.all():
+            return z_all[:, column]
+        x = data[rows, column]
+        if x.std() == 0:
+            raise DataError(f"{source}{where}: column '{printable(names[column])}' has the same value in every row that "
+                            f"also answered '{printable(names[other])}', so their correlation cannot be estimated")
+        return (x - x.mean()) / x.std()
+
     for j, name in enumerate(names):
+        rows_j = present[:, j]
+        x = data[rows_j, j]
+        n_j = len(x)
         if name in continuous:
-            if data[:, j].std() == 0:
+            if x.std() == 0:
                 raise DataError(f"{source}: column '{name}' has the same value in every row used")
             categories.append(())
             thresholds.append(np.zeros(0))
             threshold_if.append(np.zeros((n, 0)))
             continue
-        seen = np.unique(data[:, j])
+        seen = np.unique(x)
         if levels is not None:
             item_levels = np.asarray(levels[name], dtype=float)
             empty = [v for v in item_levels if v not in seen]
@@ -189,39 +242,52 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             raise DataError(f"{source}{where}: ordinal item '{name}' has {len(item_levels)} categories; with more than "
                             f"{MAX_CATEGORIES} treat it as continuous")
         levels_j = item_levels
-        codes[:, j] = np.searchsorted(levels_j, data[:, j])
-        counts = np.bincount(codes[:, j], minlength=len(levels_j))
-        cumulative = np.cumsum(counts)[:-1] / n
+        codes[rows_j, j] = np.searchsorted(levels_j, x)
+        counts = np.bincount(codes[rows_j, j], minlength=len(levels_j))
+        cumulative = np.cumsum(counts)[:-1] / n_j
         tau = dist.norm_ppf(cumulative)
         categories.append(tuple(float(v) for v in levels_j))
         thresholds.append(tau)
-        below = (codes[:, j][:, None] <= np.arange(len(tau))[None, :]).astype(float)
-        threshold_if.append((below - cumulative[None, :]) / dist.norm_pdf(tau)[None, :])
+        below = (codes[rows_j, j][:, None] <= np.arange(len(tau))[None, :]).astype(float)
+        item_if = np.zeros((n, len(tau)))
+        item_if[rows_j] = (n / n_j) * (below - cumulative[None, :]) / dist.norm_pdf(tau)[None, :]
+        threshold_if.append(item_if)
     rows_i, cols_j = np.tril_indices(p, -1)
     R = np.eye(p)
     influence = np.zeros((n, len(rows_i)))
-    z_all = (data - data.mean(axis=0)) / np.where(data.std(axis=0) > 0, data.std(axis=0), 1.0)
     for k, (i, j) in enumerate(zip(rows_i, cols_j)):
+        both = present[:, i] & present[:, j]
+        scale = n / int(pair_counts[i, j])  # 1 without gaps
         ci, cj = names[i] in continuous, names[j] in continuous
         if ci and cj:
-            r = float(np.mean(z_all[:, i] * z_all[:, j]))
+            zi, zj = standardized(i, both, j), standardized(j, both, i)
+            r = float(np.mean(zi * zj))
             R[i, j] = R[j, i] = r
-            influence[:, k] = z_all[:, i] * z_all[:, j] - r * (z_all[:, i] ** 2 + z_all[:, j] ** 2) / 2
+            influence[both, k] = scale * (zi * zj - r * (zi**2 + zj**2) / 2)
             continue
         if ci or cj:
             c, o = (i, j) if ci else (j, i)
-            rho = polyserial_pair(z_all[:, c], codes[:, o], thresholds[o])
+            x = data[both, c]
+            rho = polyserial_pair(standardized(c, both, o), codes[both, o], thresholds[o])
             R[i, j] = R[j, i] = rho
-            influence[:, k] = _polyserial_influence(data[:, c], codes[:, o], thresholds[o], threshold_if[o], rho)
+            score_o, moments_correction, info_rr, info_rt = _polyserial_parts(x, codes[both, o], thresholds[o], rho)
+            score, correction = np.zeros(n), np.zeros(n)
+            score[both] = scale * score_o
+            for c_ in range(len(info_rt)):
+                correction += info_rt[c_] * threshold_if[o][:, c_]
+            correction[both] += scale * moments_correction
+            influence[:, k] = (score - correction) / info_rr
             continue
+        ci_codes, cj_codes = codes[both, i], codes[both, j]
         table = np.zeros((len(categories[i]), len(categories[j])))
-        np.add.at(table, (codes[:, i], codes[:, j]), 1.0)
+        np.add.at(table, (ci_codes, cj_codes), 1.0)
         rho = polychoric_pair(table, thresholds[i], thresholds[j])
         R[i, j] = R[j, i] = rho
         pi = cell_probabilities(thresholds[i], thresholds[j], rho)
         d_rho = _rho_derivative(thresholds[i], thresholds[j], rho)
         info_rr = float(np.sum(d_rho**2 / pi))
-        score = d_rho[codes[:, i], codes[:, j]] / pi[codes[:, i], codes[:, j]]
+        score = np.zeros(n)
+        score[both] = scale * d_rho[ci_codes, cj_codes] / pi[ci_codes, cj_codes]
         correction = np.zeros(n)
         for item, other, d_tau in ((i, j, _threshold_derivative(thresholds[i], thresholds[j], rho)),
                                    (j, i, _threshold_derivative(thresholds[j], thresholds[i], rho).transpose(0, 2, 1))):
@@ -239,10 +305,14 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                         f"{R[i, j]:.4f}: they give (nearly) the same answers, so one adds nothing and the correlation "
                         f"matrix is singular; drop one of them")
     if np.linalg.eigvalsh(R)[0] <= 1e-8:
+        gaps = pairwise and not present.all()
         raise DataError(f"{source}{where}: the polychoric correlation matrix is not positive definite; "
-                        f"some items may be near duplicates or some categories nearly empty")
-    return OrdinalMoments(tuple(names), n, len(frame), int((~complete).sum()), source, tuple(categories), tuple(thresholds),
-                          R, gamma, codes, data.mean(axis=0), data.std(axis=0), frozenset(continuous), joint_gamma)
+                        f"some items may be near duplicates or some categories nearly empty"
+                        + ("; with missing answers, correlations from different rows need not fit together "
+                           "(--incomplete-rows listwise uses the complete rows only)" if gaps else ""))
+    return OrdinalMoments(tuple(names), n, len(frame), len(frame) - n, source, tuple(categories), tuple(thresholds),
+                          R, gamma, codes, means, sds, frozenset(continuous), joint_gamma,
+                          pair_counts if pairwise else None)
 
 
 NEAR_DUPLICATE = 0.995  # a correlation this close to 1 in size means two items answer alike (the search stops at .999)
@@ -253,12 +323,16 @@ def _categories(values) -> str:
     return f"category {text[0]}" if len(text) == 1 else "categories " + ", ".join(text)
 
 
-def shared_levels(frames: list[pd.DataFrame], names: tuple[str, ...], source: str) -> dict[str, tuple[float, ...]]:
-    """The categories of each ordinal item over all groups (each group must then use every one)."""
+def shared_levels(frames: list[pd.DataFrame], names: tuple[str, ...], source: str,
+                  pairwise: bool = False) -> dict[str, tuple[float, ...]]:
+    """The categories of each ordinal item over all groups (each group must then use every one), among the
+    rows analysed: every answer with ``pairwise``, the complete rows otherwise."""
     seen: dict[str, set] = {name: set() for name in names}
     for frame in frames:
         values = numeric_columns(frame, names, source)
-        values = values[~np.isnan(values).any(axis=1)]  # the rows listwise deletion keeps
+        if not pairwise:
+            values = values[~np.isnan(values).any(axis=1)]  # the rows listwise deletion keeps
         for j, name in enumerate(names):
-            seen[name].update(float(v) for v in np.unique(values[:, j]))
+            column = values[:, j]
+            seen[name].update(float(v) for v in np.unique(column[~np.isnan(column)]))
     return {name: tuple(sorted(v)) for name, v in seen.items()}

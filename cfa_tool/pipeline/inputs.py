@@ -298,8 +298,10 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
     if ordinal_items:
         result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
         labels = tuple(g.label for g in result.groups) if group is not None else None
-        return _described(replace(converged(result), warnings=tuple(notes) + result.warnings), spec, labels,
-                          ordinal_items)
+        summary = missing_summary(frame, spec.observed_names)  # the patterns and coverage, as for continuous items
+        gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
+        return _described(replace(converged(result), warnings=tuple(notes) + result.warnings,
+                                  missing_data=summary if gaps else None), spec, labels, ordinal_items)
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
     notes = missing_notes + notes
     if design is not None:
@@ -408,16 +410,16 @@ def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: se
                  reference_group: str | None, fit_options, method: str) -> FitResult:
     from cfa_tool.pipeline import ordinal as ordinal_fitting
 
-    check_ordinal_options(fit_options)
+    pairwise = check_ordinal_options(fit_options)
     if group is None:
         if reference_group is not None:
             raise OptionError("a reference group needs a group column")
         from cfa_tool.data.polychoric import ordinal_moments
 
         continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
-        moments = ordinal_moments(frame, spec.observed_names, source, continuous)
+        moments = ordinal_moments(frame, spec.observed_names, source, continuous, pairwise=pairwise)
         return ordinal_fitting.fit_ordinal(spec, moments, fit_options, method)
-    groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items)
+    groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise)
     result = ordinal_fitting.fit_ordinal_groups(spec, groups, fit_options, method, group)
     return replace(result, warnings=tuple(notes) + result.warnings)
 
@@ -442,19 +444,23 @@ def without_exploratory_blocks(spec: Spec, command: str, why: str) -> Spec:
     return spec
 
 
-def check_ordinal_options(fit_options) -> None:
+def check_ordinal_options(fit_options) -> bool:
+    """Refuse the options that cannot apply to ordinal items; whether rows with gaps are kept (pairwise
+    present rows, the default) rather than left out (listwise, when asked)."""
     if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test not in (FitTest.NORMAL, FitTest.ROBUST):
-        raise OptionError("ordinal items are fitted with listwise deletion and their own adjusted test; full-information "
-                          "ML and the Satorra-Bentler and Yuan-Bentler tests are for continuous items")
+        raise OptionError("ordinal items use every answer through pairwise present rows (or only the complete rows with "
+                          "--incomplete-rows listwise) and their own adjusted test; full-information ML and the "
+                          "Satorra-Bentler and Yuan-Bentler tests are for continuous items")
     if fit_options.information is not None:
         raise OptionError("ordinal items get robust (sandwich) standard errors from the least-squares fit, so an "
                           "information matrix cannot be chosen; remove that option")
+    return fit_options.missing is not MissingData.LISTWISE
 
 
 def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, reference_group: str | None,
-                   ordinal_items: set[str]) -> tuple[list, list[str]]:
+                   ordinal_items: set[str], pairwise: bool = False) -> tuple[list, list[str]]:
     """Per-group ordinal moments (every indicator must then be ordinal), with notes on rows left out:
-    the ordinal counterpart of :func:`moments_for`."""
+    the ordinal counterpart of :func:`moments_for`; ``pairwise`` keeps rows with gaps (pairwise present)."""
     continuous = sorted(x for x in spec.observed_names if x not in ordinal_items)
     if continuous:
         raise OptionError(f"with groups every indicator must be ordinal; '{continuous[0]}' is not (declare it with "
@@ -462,7 +468,7 @@ def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, ref
     _check_group_column(spec, group)
     from cfa_tool.data.groups import split_ordinal_moments
 
-    groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group)
+    groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise)
     return groups, _no_group_notes(no_group, group) + label_notes(frame, group)
 
 
@@ -533,7 +539,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
           sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
           reference_group: str | None = None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
-    are complete, how many have gaps (used by full-information ML, the default) and each item's
+    are complete, how many have gaps (kept by default) and each item's
     coverage."""
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
@@ -553,12 +559,12 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     ordinal_items = ordinal_items_of(spec, None)
     if ordinal_items:  # the same data checks as the fit (categories, empty cells in groups, duplicates)
         if group is not None:
-            ordinal_groups(spec, frame, source, group, reference_group, ordinal_items)
+            ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise=True)
         else:
             from cfa_tool.data.polychoric import ordinal_moments
 
             ordinal_moments(frame, spec.observed_names, source,
-                            frozenset(x for x in spec.observed_names if x not in ordinal_items))
+                            frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
     groups, _ = moments_for(spec, frame, source, group, reference_group, missing=options.missing)
     labels = tuple(label for label, _ in groups) if group is not None else None
@@ -570,5 +576,5 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     empty = int((~answered.any(axis=1)).sum())
     coverage = {name: float(v) for name, v in answered.mean(axis=0).items()} if len(answered) else {}
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - empty, empty, coverage,
-                       labels)
+                       labels, bool(ordinal_items))
 

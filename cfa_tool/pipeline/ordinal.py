@@ -53,9 +53,9 @@ def _check_method(method: Weighting | str) -> Weighting:
     return Weighting.parse(method, "the ordinal estimator")
 
 
-def _fit_method(weighting: Weighting, items: Items, thresholds: bool) -> FitMethod:
-    return FitMethod(Estimator.LEAST_SQUARES, FitTest.SCALE_SHIFTED, Information.SANDWICH, MissingData.LISTWISE,
-                     weighting, items, thresholds)
+def _fit_method(weighting: Weighting, items: Items, thresholds: bool, pairwise: bool) -> FitMethod:
+    return FitMethod(Estimator.LEAST_SQUARES, FitTest.SCALE_SHIFTED, Information.SANDWICH,
+                     MissingData.PAIRWISE if pairwise else MissingData.LISTWISE, weighting, items, thresholds)
 
 
 def _least_squares_fit(T: float, df: int, T_base: float, base_df: int, n: int, n_free: int, srmr_value: float,
@@ -109,9 +109,40 @@ def _category_counts(moments, order: list[int]) -> tuple:
         if moments.names[k] in moments.continuous:
             out.append(())
             continue
-        counts = np.bincount(moments.codes[:, k], minlength=len(moments.categories[k]))
+        codes = moments.codes[:, k]
+        counts = np.bincount(codes[codes >= 0], minlength=len(moments.categories[k]))
         out.append(tuple((float(v), int(c)) for v, c in zip(moments.categories[k], counts)))
     return tuple(out)
+
+
+def _pair_rows(moments, order: list[int]) -> tuple[tuple[str, str, int], ...]:
+    """(item, item, rows answering both) for each pair in model order, with pairwise present rows."""
+    if moments.pair_counts is None:
+        return ()
+    return tuple((moments.names[order[i]], moments.names[order[j]], int(moments.pair_counts[order[i], order[j]]))
+                 for i in range(len(order)) for j in range(i + 1, len(order)))
+
+
+def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
+    """What happened to rows with missing answers, in one line (nothing when no analysed row has a gap)."""
+    if not moments.pairwise:
+        if not moments.rows_dropped:
+            return []
+        return [f"{moments.rows_dropped} of {moments.rows_read} rows{where} had a missing answer on a model variable and "
+                f"were left out (listwise deletion); {moments.n_obs} rows were analysed"]
+    out = []
+    if moments.rows_dropped:
+        out.append(f"{moments.rows_dropped} of {moments.rows_read} rows{where} answered no model variable and were left out")
+    if moments.gaps:
+        pairs = _pair_rows(moments, order)
+        low, high = min(pairs, key=lambda t: t[2]), max(pairs, key=lambda t: t[2])
+        complete = int((moments.codes >= 0).all(axis=1).sum())
+        out.append(f"missing answers{where}: every answer is used (pairwise present rows): each item's thresholds come "
+                   f"from the rows that answered it, each correlation from the rows that answered both items, from "
+                   f"{low[2]} rows ({low[0]}, {low[1]}) to {high[2]} ({high[0]}, {high[1]}) of {moments.n_obs}; the "
+                   f"standard errors and tests allow for this; --incomplete-rows listwise would use only the "
+                   f"{complete} complete rows")
+    return out
 
 
 def _first_step_thresholds(moments, order: list[int]) -> tuple[EstimateRow, ...]:
@@ -183,9 +214,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
             values[e] = T_final[par.row, par.row]
     standardized, factors_standardized = standardize_entries(final, codes, rows, cols, values)
     warnings = []
-    if moments.rows_dropped:
-        warnings.append(f"{moments.rows_dropped} of {moments.rows_read} rows had a missing answer on a model variable and "
-                        f"were left out (listwise deletion); {n} rows were analysed")
+    warnings.extend(_rows_notes(moments, order))
     fit = robust = inference = None
     sigma = final.implied_covariance()
     modification: list[ModificationIndex] = []
@@ -219,7 +248,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
         warnings.extend(keying_warnings(factors))
     summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
                           tuple(float(moments.means[k]) for k in order), tuple(float(moments.sds[k]) for k in order),
-                          categories=_category_counts(moments, order))
+                          categories=_category_counts(moments, order), pair_rows=_pair_rows(moments, order))
     if moments.continuous:
         warnings.append("continuous items are analysed beside the ordinal ones in the correlation metric (polyserial and "
                         "Pearson correlations): their unstandardized estimates are in standard-deviation units")
@@ -227,7 +256,8 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
                         r_squared=dict(zip(table.observed, (float(v) for v in r_squared(final)))), sample_covariance=R,
                         implied_covariance=sigma, residual_correlations=R - sigma, sample_mean=np.zeros(p),
                         implied_mean=None, normality=None, reliability=tuple(factors), htmt=tuple(htmt))
-    fit_method = _fit_method(method, Items.MIXED if moments.continuous else Items.ORDINAL, thresholds=False)
+    fit_method = _fit_method(method, Items.MIXED if moments.continuous else Items.ORDINAL, thresholds=False,
+                             pairwise=moments.pairwise)
     return fit_result(spec=spec, method=fit_method, converged=opt.converged, iterations=opt.iterations, message=message,
                       theta=theta, n_obs=n, data=summary, observed=table.observed, latent=table.latent, fit=fit,
                       robust=robust, estimates=estimates, modification_indices=modification, groups=(group,),
@@ -370,9 +400,9 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         standardized[thr] = factors_standardized[thr] = (values[thr] - mu[item]) / np.sqrt(np.diag(sigma)[item])
     warnings = []
     dropped = sum(m.rows_dropped for m in moments)
-    if dropped:
-        warnings.append(f"{dropped} {'row' if dropped == 1 else 'rows'} had a missing answer on a model variable and "
-                        f"{'was' if dropped == 1 else 'were'} left out (listwise deletion)")
+    model_order = list(range(p))  # the groups' moments are in model order
+    for (label, _), m in zip(groups, moments):
+        warnings.extend(_rows_notes(m, model_order, f" in group {label}"))
     fit = robust = inference = None
     modification_rows: list[ModificationIndex] = []
     shares = [None] * G
@@ -421,7 +451,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         rho = sigma / np.outer(sd, sd)
         summary = DataSummary(mg.source, mg.rows_read, mg.rows_dropped, mg.n_obs, table.observed,
                               tuple(float(v) for v in mg.means), tuple(float(v) for v in mg.sds),
-                              categories=_category_counts(mg, [mg.names.index(x) for x in table.observed]))
+                              categories=_category_counts(mg, [mg.names.index(x) for x in table.observed]),
+                              pair_rows=_pair_rows(mg, list(range(p))))
         factors, htmt = reliability(mats[g], table.observed, table.latent, mg.correlations,
                                     declared=spec.reverse_keyed or None, sum_scores=False, not_traits=spec.method_factors)
         if est.converged:
@@ -431,10 +462,13 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                                          sample_covariance=mg.correlations, implied_covariance=rho,
                                          residual_correlations=mg.correlations - rho, sample_mean=np.zeros(p),
                                          implied_mean=None, normality=None, reliability=tuple(factors), htmt=tuple(htmt)))
+    per_group = [_pair_rows(m, list(range(p))) for m in moments]
+    total_pairs = tuple((a, b, sum(rows[k][2] for rows in per_group)) for k, (a, b, _) in enumerate(per_group[0]))
     total = DataSummary(moments[0].source, sum(m.rows_read for m in moments), dropped, n, table.observed,
                         tuple(float(v) for v in sum(m.n_obs * m.means for m in moments) / n),
-                        tuple(float(v) for v in moments[0].sds))
-    return fit_result(spec=spec, method=_fit_method(method, Items.ORDINAL, thresholds=True), converged=est.converged,
+                        tuple(float(v) for v in moments[0].sds), pair_rows=total_pairs)
+    return fit_result(spec=spec, method=_fit_method(method, Items.ORDINAL, thresholds=True,
+                                                    pairwise=all(m.pairwise for m in moments)), converged=est.converged,
                       iterations=est.iterations, message=est.message, theta=theta, n_obs=n, data=total,
                       observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,
                       modification_indices=modification_rows, groups=group_results, warnings=warnings, options=options,

@@ -73,6 +73,7 @@ class CheckResult(Presentable):
     empty: int  # rows that answer none (left out)
     coverage: dict  # share of rows answering each model variable
     groups: tuple[str, ...] | None
+    ordinal: bool = False  # ordinal items: rows with gaps are used through pairwise present rows
 
     def summary(self) -> str:
         spec = self.spec
@@ -81,7 +82,8 @@ class CheckResult(Presentable):
         if self.groups:
             lines.append(f"Groups: {len(self.groups)} ({', '.join(self.groups)}).")
         lines.append(f"Rows: {self.rows} read, {self.complete} complete, {self.with_gaps} with missing answers "
-                     f"(used by full-information ML, the default), {self.empty} with no answer to any model variable.")
+                     f"({'used through pairwise present rows for ordinal items' if self.ordinal else 'used by full-information ML'}, "
+                     f"the default), {self.empty} with no answer to any model variable.")
         low = sorted((v, k) for k, v in self.coverage.items() if v < 1)
         if low:
             rest = "; every other item 100%" if len(low) < len(self.coverage) else ""
@@ -110,6 +112,16 @@ class DataSummary:
     kurtosis: tuple[float, ...] = ()  # excess kurtosis
     # ordinal items: per item, (answer value, rows giving it) for each category, in order
     categories: tuple[tuple[tuple[float, int], ...], ...] = ()
+    # ordinal items with pairwise present rows: (item, item, rows answering both) for each pair
+    pair_rows: tuple[tuple[str, str, int], ...] = ()
+
+    @property
+    def pair_range(self) -> tuple[int, int] | None:
+        """The smallest and largest number of rows a pair of items was computed from (pairwise present rows)."""
+        if not self.pair_rows:
+            return None
+        counts = [c for _, _, c in self.pair_rows]
+        return min(counts), max(counts)
 
     def to_dict(self) -> dict:
         out = {
@@ -126,6 +138,8 @@ class DataSummary:
         if self.categories:
             out["category_counts"] = {name: [{"value": v, "rows": c} for v, c in cats]
                                       for name, cats in zip(self.variables, self.categories)}
+        if self.pair_rows:
+            out["pair_rows"] = [{"items": [a, b], "rows": c} for a, b, c in self.pair_rows]
         return clean(out)
 
 
@@ -303,6 +317,7 @@ class FitResult(Presentable):
                     "normality": clean(g.normality.to_dict()) if g.normality is not None else None,
                     "reliability": g.reliability_dict(),
                     "diagnostics": g.diagnostics_dict(),
+                    **({"pair_rows": g.data.to_dict()["pair_rows"]} if g.data.pair_rows else {}),
                 }
                 for g in self.groups
             ]

@@ -11,7 +11,7 @@ that from the result's model description, never from a generic template.
 
 from __future__ import annotations
 
-from cfa_tool.method import FitTest, Items
+from cfa_tool.method import FitTest, Items, MissingData
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.numbers import unit
@@ -203,8 +203,12 @@ def _sample_phrase(result) -> str:
         low = min(coverage.values()) if coverage else 1.0
         text += (f"; every answer of every row was used, including rows with missing answers (item coverage "
                  f"{unit(low, 2)} or higher)")
+    pairs = data.pair_range
+    if pairs is not None and pairs[0] < result.n_obs:
+        text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
+                 f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair")
     if data.rows_dropped:
-        if full_information:
+        if full_information or result.method.missing is MissingData.PAIRWISE:
             text += f"; {data.rows_dropped} of {data.rows_read} rows answered no model variable and were left out"
         else:
             text += f"; {data.rows_dropped} of {data.rows_read} rows with missing answers were excluded listwise"

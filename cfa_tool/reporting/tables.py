@@ -621,6 +621,15 @@ def category_table(result, group: int = 0) -> ReportTable | None:
                   values=(["Item"] + [f"Category {k + 1} rows" for k in range(width)], values))
 
 
+def pair_rows_phrase(data) -> str:
+    """For the data line: how many rows the pairs of ordinal items were computed from when rows with gaps
+    were kept (pairwise present rows); empty otherwise."""
+    pairs = data.pair_range
+    if pairs is None or pairs[0] == data.n_obs:
+        return ""
+    return f" ({pairs[0]} to {pairs[1]} rows per pair of items: each pair from the rows that answered both)"
+
+
 def correlation_table(result, group: int = 0) -> ReportTable | None:
     """The items' sample correlations (lower triangle), with the number of rows they come from."""
     names = result.observed
@@ -633,7 +642,10 @@ def correlation_table(result, group: int = 0) -> ReportTable | None:
     rows = [[f"{i + 1} {name}"] + [unit(r[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
             for i, name in enumerate(names) if i > 0]
     where = f" in group {g.label}" if g.label is not None else ""
-    return _table(f"correlations_{group}", f"Correlations of the items{where} (N = {g.data.n_obs})",
+    pairs = g.data.pair_range
+    rows_used = (f"N = {pairs[0]} to {pairs[1]} per pair" if pairs is not None and pairs[0] < pairs[1]
+                 else f"N = {g.data.n_obs}" if pairs is None else f"N = {pairs[0]}")
+    return _table(f"correlations_{group}", f"Correlations of the items{where} ({rows_used})",
                   [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows,
                   "For ordinal items: polychoric (and polyserial) correlations. With full-information estimation: "
                   "the saturated model's estimates from every answer." if (result.missing_data or

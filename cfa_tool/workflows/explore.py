@@ -370,7 +370,8 @@ def _correlations(frame, names, source, ordinal_items, notes):
         moments = ordinal_moments(frame, names, source, continuous)
         left = len(frame) - moments.n_obs
         if left:
-            notes.append(f"{left} rows with gaps on the items were left out (polychoric correlations need complete rows).")
+            notes.append(f"{left} rows with gaps on the items were left out (explore computes the polychoric correlations "
+                         f"from the complete rows).")
         return from_ordinal_moments(moments)
     values = _numeric_rows(frame, names, source)
     gaps = int(np.isnan(values).any(axis=1).sum())

@@ -539,8 +539,11 @@ def _linear_models(spec, frame, source, group, reference_group, fit_options, res
 
 
 def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, result):
+    from cfa_tool.method import MissingData
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.scoring.model import one_group_ordinal_inputs, ordinal_score_inputs
+
+    pairwise = result.method.missing is MissingData.PAIRWISE  # the thresholds the fit used
 
     if group is None:
         from cfa_tool.data.polychoric import ordinal_moments
@@ -550,13 +553,13 @@ def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, 
 
         table = build_parameter_table(ordinal_spec(spec)[0])
         continuous = frozenset(x for x in table.observed if x not in ordinal_items)
-        moments = ordinal_moments(frame, table.observed, source, continuous)
+        moments = ordinal_moments(frame, table.observed, source, continuous, pairwise=pairwise)
         mats = StructuredModel(table).matrices(result.theta)
         return [one_group_ordinal_inputs(mats, table.observed, table.latent, moments)], [None]
     from cfa_tool.model.implied import StructuredModel
     from cfa_tool.model.parameters import build_parameter_table
 
-    groups, _ = api.ordinal_groups(spec, frame, source, group, reference_group, ordinal_items)
+    groups, _ = api.ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise)
     labels = tuple(label for label, _ in groups)
     n_thresholds = {x: len(t) for x, t in zip(spec.observed_names, groups[0][1].thresholds)}
     table = build_parameter_table(spec, labels, ordinal=n_thresholds)

@@ -251,12 +251,12 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         frame, _ = check_design(frame, design, spec.observed_names, group, source)
         fit_options = design_test(fit_options, design)
     if ordinal_items:
-        check_ordinal_options(fit_options)
+        pairwise = check_ordinal_options(fit_options)
         if rule is not DecisionRule.DIFFERENCE_TEST:
             raise OptionError("with ordinal items the fit indices of each step come from its own adjusted statistic and "
                               "cannot be compared across steps; judge the steps by the difference tests "
                               "(--decide-by difference-test)")
-        groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items)
+        groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise)
         ladder = OrdinalLadder(ordinal_estimator)
     else:
         groups, notes = moments_for(spec, frame, source, group, reference_group, design=design)
