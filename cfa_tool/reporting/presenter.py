@@ -9,13 +9,13 @@ def _workflow_renderer(result: object):
     from cfa_tool.reporting import workflow_text as W
     from cfa_tool.workflows.compare import Comparison
     from cfa_tool.workflows.invariance import InvarianceResult
-    from cfa_tool.workflows.montecarlo import MonteCarloPower
+    from cfa_tool.workflows.montecarlo import MonteCarloPower, PowerCurve
     from cfa_tool.workflows.power import PowerResult
     from cfa_tool.workflows.replication import Replication
     from cfa_tool.workflows.simulation import SimulatedData
 
     for kind, render in ((Comparison, W.render_comparison), (InvarianceResult, W.render_invariance),
-                         (MonteCarloPower, W.render_montecarlo), (PowerResult, W.render_power),
+                         (MonteCarloPower, W.render_montecarlo), (PowerCurve, W.render_power_curve), (PowerResult, W.render_power),
                          (SimulatedData, W.render_population)):
         if isinstance(result, kind):
             return render

@@ -278,6 +278,9 @@ def _percent(share: float) -> str:
 
 
 def render_montecarlo(result, console: Console) -> None:
+    if hasattr(result, "results"):  # a power curve: several sample sizes
+        render_power_curve(result, console)
+        return
     console.print(Text(f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
                        style="bold underline"))
     console.print(f"{result.converged} of {result.replications} replications converged "
@@ -297,6 +300,24 @@ def render_montecarlo(result, console: Console) -> None:
                   f"coverage: share of 95% Wald intervals that hold the population value (nominal 95%); bias: mean estimate (or mean SE) against the population "
                   f"value (or the SD of the estimates). Population values, mean estimates and SDs are in the JSON "
                   f"(--json).")
+
+
+def render_power_curve(curve, console: Console) -> None:
+    """Power per parameter (rows) and sample size (columns), then each size's convergence."""
+    first = curve.results[0]
+    console.print(Text(f"Monte Carlo power by sample size: {first.replications} replications per size (seed {first.seed})",
+                       style="bold underline"))
+    console.print("Converged: " + ", ".join(f"{r.converged} of {r.replications} at N = {r.n_obs}" for r in curve.results) + ".")
+    if first.defaulted:
+        console.print("Population values not given in the model file took defaults: " + ", ".join(first.defaulted))
+    table = _table("Power per parameter", [("Parameter", "left")] + [(f"N = {n}", "right") for n in curve.sample_sizes])
+    for k, p in enumerate(first.parameters):
+        table.add_row(p.label, *(unit(r.parameters[k].power, 2) for r in curve.results))
+    table.columns[0].min_width = min(max((len(p.label) for p in first.parameters), default=9), 36)
+    table.columns[0].overflow = "fold"
+    console.print(table)
+    console.print(f"Power: share of replications in which the parameter differs from zero at alpha {unit(first.alpha, 2)}. "
+                  f"Coverage and bias at each sample size are in the JSON (--json).")
 
 
 def render_cutoffs(pair, console: Console) -> None:
