@@ -23,6 +23,7 @@ from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import FitTest, MissingData, Weighting
+from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.results import CheckResult, FitResult
 
 
@@ -273,15 +274,17 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
     spec = with_ordinal_levels(spec, ordinal_items)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if ordinal_items:
-        result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
+        with blas_threads_for(len(spec.observed_names)):
+            result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
         labels = tuple(g.label for g in result.groups) if group is not None else None
         return _described(replace(converged(result), warnings=tuple(notes) + result.warnings), spec, labels,
                           ordinal_items)
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
     notes = missing_notes + notes
-    groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
-    notes += group_notes
-    result = converged(fit_moments(spec, groups, fit_options, group_column=group))
+    with blas_threads_for(len(spec.observed_names)):  # the data's moments as well as the fit
+        groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing)
+        notes += group_notes
+        result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     every_row_complete = (sum(m.n_obs for _, m in groups) == len(frame)
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
     summary = None if every_row_complete else missing_summary(frame, spec.observed_names)
