@@ -1,16 +1,19 @@
-"""Instructions per fit of case 1, counted by valgrind: a measure that does not move with the load of a
+"""Instructions per fit, counted by valgrind: a measure that does not move with the load of a
 shared machine (wall-clock times here vary by up to 2x between runs).
 
-    python bench/instructions.py          # needs valgrind; takes about a minute
+    python bench/instructions.py                  # case 1, lean call; needs valgrind; about a minute
+    python bench/instructions.py --call default   # case 1 as a user runs it: fit(text, data).to_dict()
+    python bench/instructions.py --items 30 --fits 100 --call default   # a simulated model of run.py
 
-Runs the fit 10 and 1010 times under ``valgrind --tool=callgrind`` in two processes and reports the
-difference divided by 1000, so that start-up (imports, the first fit) cancels out.  One BLAS thread,
-as the tool uses for models of this size.  Instruction counts weigh Python-level work more heavily than
+Runs the fit 10 and 10 + ``--fits`` (default 1000) times under ``valgrind --tool=callgrind`` in two
+processes and reports the difference divided by ``--fits``, so that start-up (imports, the first fit)
+cancels out.  One BLAS thread, as the tool uses for models of this size.  Instruction counts weigh Python-level work more heavily than
 wall time does, so use them to compare versions of the code, and the timings in run.py for the ratios.
 """
 
 from __future__ import annotations
 
+import argparse
 import os
 import re
 import subprocess
@@ -26,26 +29,46 @@ warnings.filterwarnings("ignore")
 import pandas as pd
 import cfa_tool
 data = pd.read_csv(sys.argv[2])
-model = "factor visual: x1, x2, x3\\nfactor textual: x4, x5, x6\\nfactor speed: x7, x8, x9\\n"
+model = open(sys.argv[3]).read()
+lean = sys.argv[4] == "lean"
 for _ in range(int(sys.argv[1])):
-    cfa_tool.fit(model, data, diagnostics=False, modification_indices=False)
+    if lean:
+        cfa_tool.fit(model, data, diagnostics=False, modification_indices=False)
+    else:
+        cfa_tool.fit(model, data).to_dict()
 """
 
 
-def count(fits: int, script: Path, data: Path) -> subprocess.Popen:
+def count(fits: int, script: Path, data: Path, model: Path, call: str) -> subprocess.Popen:
     env = dict(os.environ, PYTHONPATH=str(ROOT), OPENBLAS_NUM_THREADS="1")
     return subprocess.Popen(["valgrind", "--tool=callgrind", "--callgrind-out-file=/dev/null", sys.executable, str(script),
-                             str(fits), str(data)], env=env, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
+                             str(fits), str(data), str(model), call], env=env, stdout=subprocess.DEVNULL,
+                            stderr=subprocess.PIPE, text=True)
 
 
 def main() -> None:
-    from semopy.examples import holzinger39
-
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--call", choices=["lean", "default"], default="lean",
+                        help="lean: no modification indices or diagnostics; default: the full report and to_dict()")
+    parser.add_argument("--items", type=int, default=9, help="9: Holzinger-Swineford (case 1); 30, 60...: run.py's simulated models")
+    parser.add_argument("--fits", type=int, default=1000)
+    args = parser.parse_args()
     with tempfile.TemporaryDirectory() as tmp:
-        script, data = Path(tmp) / "fit.py", Path(tmp) / "hs.csv"
+        script, data, model = Path(tmp) / "fit.py", Path(tmp) / "data.csv", Path(tmp) / "model.cfa"
         script.write_text(CHILD)
-        holzinger39.get_data()[[f"x{i}" for i in range(1, 10)]].to_csv(data, index=False)
-        runs = {n: count(n, script, data) for n in (10, 1010)}
+        if args.items == 9:
+            from semopy.examples import holzinger39
+
+            holzinger39.get_data()[[f"x{i}" for i in range(1, 10)]].to_csv(data, index=False)
+            model.write_text("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n")
+        else:
+            sys.path.insert(0, str(ROOT / "bench"))
+            from run import simulated
+
+            text, _, frame = simulated(args.items, args.items // 10, 1000, args.items)
+            frame.to_csv(data, index=False)
+            model.write_text(text)
+        runs = {n: count(n, script, data, model, args.call) for n in (10, 10 + args.fits)}
         totals = {}
         for n, proc in runs.items():
             _, err = proc.communicate()
@@ -53,7 +76,8 @@ def main() -> None:
             if proc.returncode != 0 or found is None:
                 raise SystemExit(f"valgrind run with {n} fits failed:\n{err[-2000:]}")
             totals[n] = int(found.group(1).replace(",", ""))
-    print(f"case 1: {(totals[1010] - totals[10]) / 1000:,.0f} instructions per fit")
+    case = "case 1" if args.items == 9 else f"{args.items} items"
+    print(f"{case}, {args.call} call: {(totals[10 + args.fits] - totals[10]) / args.fits:,.0f} instructions per fit")
 
 
 if __name__ == "__main__":

@@ -87,6 +87,12 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print(f"{PROG}: interrupted", file=sys.stderr)
         return 130
+    except BrokenPipeError:  # the reader of standard output stopped early (e.g. '| head'): nothing more to say
+        try:
+            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        except (OSError, ValueError):  # pragma: no cover - no real standard output (tests)
+            pass
+        return 141
     except Exception as exc:  # a bug in the tool, not the user's fault
         if os.environ.get("CFA_TOOL_DEBUG"):
             raise

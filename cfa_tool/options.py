@@ -91,3 +91,20 @@ def workers(value: object) -> int | None:
 
 def observations(value: object, name: str = "the number of observations", minimum: int = 1) -> int:
     return whole_number(name, value, minimum, MAX_OBSERVATIONS)
+
+
+def sample_sizes(value: object, name: str = "the sample size") -> tuple[int, ...]:
+    """One sample size or several: a whole number, a list of them, or text such as '100,200,400'
+    (each at least 1, none repeated), in the order given."""
+    if isinstance(value, str):
+        parts = [part.strip() for part in value.split(",")]
+        if not all(part.isdigit() for part in parts):
+            raise OptionError(f"{name} must be a whole number or whole numbers separated by commas (100,200,400), "
+                              f"not {_shown(value)}")
+        value = [int(part) for part in parts]
+    sizes = tuple(observations(v, name) for v in (value if isinstance(value, (list, tuple)) else [value]))
+    if not sizes:
+        raise OptionError(f"{name}: give at least one")
+    if len(set(sizes)) < len(sizes):
+        raise OptionError(f"{name}: {_shown(value)} names a sample size twice")
+    return sizes

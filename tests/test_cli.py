@@ -126,3 +126,14 @@ def test_no_convergence_exits_3_and_writes_nothing(workdir):
     proc = run("fit", "rider.cfa", "--data", "rider.csv", "--max-iterations", "1", "--json", "out.json", cwd=workdir)
     _assert_user_error(proc, 3, "did not converge")
     assert not (workdir / "out.json").exists()
+
+
+def test_a_reader_that_stops_early_gets_no_error_message():
+    # 'cfa-tool demo | head -1': the pipe closes while the report is printed; the convention of shells is
+    # exit status 141 (128 + SIGPIPE) and no message
+    proc = subprocess.Popen([sys.executable, "-m", "cfa_tool", "demo"], stdout=subprocess.PIPE, stderr=subprocess.PIPE,
+                            env=_env())
+    proc.stdout.readline()
+    proc.stdout.close()
+    err = proc.stderr.read()
+    assert proc.wait() == 141 and err == b""

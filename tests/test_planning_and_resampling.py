@@ -121,6 +121,45 @@ def test_monte_carlo_power_agrees_with_the_analytic_value():
     assert abs(row.relative_bias) < 0.1 and 0.9 < row.coverage < 0.99
 
 
+def test_power_by_sample_size_agrees_with_the_analytic_values():
+    # the same analytic power as above (Phi(|cov| / SE - 1.96) + Phi(-|cov| / SE - 1.96), SE from the expected
+    # information at the population values; Satorra & Saris 1985 style) at each sample size of a curve
+    from scipy import stats
+
+    from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood
+    from cfa_tool.model.implied import StructuredModel
+    from cfa_tool.workflows.montecarlo import PowerCurve
+
+    spec = parse_model(POPULATION + "start variance(f), variance(g) = 1\n")
+    population = population_from_spec(spec)
+    model = StructuredModel(population.table)
+    k = population.table.free_labels.index("covariance(f, g)")
+    curve = monte_carlo_power(spec, "100,300", replications=200, seed=4, workers=1)
+    assert isinstance(curve, PowerCurve) and curve.sample_sizes == (100, 300)
+    for result in curve.results:
+        n = result.n_obs
+        info = NormalLikelihood(model, [GroupMoments(population.sigma, np.zeros(8), n)]).evaluate(population.theta).information
+        se = np.sqrt(2 / n * np.linalg.inv(info)[k, k])
+        analytic = stats.norm.cdf(0.15 / se - 1.96) + stats.norm.cdf(-0.15 / se - 1.96)
+        row = [p for p in result.parameters if p.label == "covariance(f, g)"][0]
+        assert abs(row.power - analytic) < 3.5 * np.sqrt(analytic * (1 - analytic) / result.converged)
+    out = curve.to_dict()
+    assert out["sample_sizes"] == [100, 300]
+    assert [p["power"] for p in out["power"] if p["label"] == "covariance(f, g)"][0] == [
+        [p.power for p in r.parameters if p.label == "covariance(f, g)"][0] for r in curve.results]
+    # one size in a list is the single-size result, seeds included
+    assert monte_carlo_power(spec, [100], replications=5, seed=4, workers=1) == monte_carlo_power(
+        spec, 100, replications=5, seed=4, workers=1)
+
+
+@pytest.mark.parametrize("sizes, words", [("100,x", "separated by commas"), ("100,100", "twice"), ("100,0", "at least 1")])
+def test_power_by_sample_size_refuses_bad_lists(sizes, words):
+    from cfa_tool.errors import OptionError
+
+    with pytest.raises(OptionError, match=words):
+        monte_carlo_power(parse_model(POPULATION), sizes, replications=5, workers=1)
+
+
 def test_bootstrap_is_reproducible_and_covers_the_estimate(hs_data):
     from cfa_tool.workflows.bootstrap import bootstrap
 

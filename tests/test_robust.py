@@ -75,6 +75,21 @@ def test_mardia_against_direct_double_sum():
     assert result.skewness_df == 10 and result.kurtosis_expected == 15
 
 
+@pytest.mark.parametrize("n, p", [(30, 6), (200, 3)])
+def test_mardia_in_blocks_against_direct_double_sum(monkeypatch, n, p):
+    # 30 rows of 6 items take the blocked Gram-matrix path, 200 rows of 3 the blocked third-moment path;
+    # a small block size makes several blocks of each (the definition of b1 and b2: Mardia 1970)
+    from cfa_tool.assessment import normality
+
+    monkeypatch.setattr(normality, "BLOCK", 64)
+    x = np.random.default_rng(5).gamma(2.0, size=(n, p))
+    z = x - x.mean(0)
+    g = z @ np.linalg.inv(z.T @ z / n) @ z.T
+    result = mardia(x)
+    assert result.skewness == pytest.approx(float(np.sum(g**3)) / n**2, rel=1e-10)
+    assert result.kurtosis == pytest.approx(float(np.mean(np.diag(g) ** 2)), rel=1e-10)
+
+
 def test_mardia_on_normal_data():
     result = mardia(np.random.default_rng(9).standard_normal((5000, 4)))
     # p(p+2) = 24 under normality (Mardia 1970); its SE here is sqrt(8 p (p+2) / N) = 0.2

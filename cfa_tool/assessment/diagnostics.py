@@ -14,6 +14,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+from scipy.linalg import solve_triangular
+
+from cfa_tool.assessment.normality import whitened_rows
 from cfa_tool.numerics import distributions as dist
 
 
@@ -39,19 +42,24 @@ def normalized_residuals(S: np.ndarray, sigma: np.ndarray, n_obs: int) -> np.nda
     return (S - sigma) / scale
 
 
-def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarray | None, top: int = 10
-                     ) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
-    """(rows with the largest Mahalanobis distances, rows with the largest shares of chi-square)."""
+def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarray | None, top: int = 10,
+                     whitened: tuple[np.ndarray, float] | None = None) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
+    """(rows with the largest Mahalanobis distances, rows with the largest shares of chi-square);
+    ``whitened`` is :func:`~cfa_tool.assessment.normality.whitened_rows` of the rows when the caller has it."""
     n, p = rows.shape
     dev = rows - rows.mean(axis=0)
-    S = dev.T @ dev / n
-    d_sample = np.einsum("ij,ij->i", dev @ np.linalg.inv(S), dev)
-    d_model = np.einsum("ij,ij->i", dev @ np.linalg.inv(sigma), dev)
-    share = np.linalg.slogdet(sigma)[1] - np.linalg.slogdet(S)[1] + d_model - d_sample
+    Y, log_det_S = whitened_rows(rows) if whitened is None else whitened
+    d_sample = np.einsum("ij,ij->i", Y, Y)
+    L = np.linalg.cholesky(sigma)
+    Z = solve_triangular(L, dev.T, lower=True, check_finite=False)
+    d_model = np.einsum("ij,ij->j", Z, Z)
+    share = 2.0 * float(np.log(L.diagonal()).sum()) - log_det_S + d_model - d_sample
     numbers = np.arange(1, n + 1) if row_numbers is None else row_numbers
-    p_values = dist.chi2_sf(d_sample, p)
 
     def pick(order) -> list[CaseDiagnostic]:
-        return [CaseDiagnostic(int(numbers[i]), float(d_sample[i]), float(p_values[i]), float(share[i])) for i in order[:top]]
+        chosen = order[:top]
+        p_values = dist.chi2_sf(d_sample[chosen], p)  # only for the rows shown
+        return [CaseDiagnostic(int(numbers[i]), float(d_sample[i]), float(pv), float(share[i]))
+                for i, pv in zip(chosen, p_values)]
 
     return pick(np.argsort(-d_sample, kind="stable")), pick(np.argsort(-share, kind="stable"))

@@ -22,7 +22,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.assessment.standardized import standardize_entries
-from cfa_tool.numerics.linalg import scaled_inverse, scaled_solve
+from cfa_tool.numerics.linalg import inverse_quadratic_forms, scaled_inverse
 from cfa_tool.estimation.objective import Objective
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable
@@ -93,7 +93,7 @@ def constrained_entries(table: ParameterTable, kinds: tuple[str, ...], group: in
 def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]]) -> list[ModificationIndex]:
     """MI and EPC for each group's candidate entries (``candidates[g]``)."""
     table = model.table
-    if hasattr(likelihood, "candidate_scores"):  # complete data: every block from rank-two derivatives
+    if hasattr(likelihood, "candidate_scores"):  # complete data: every block from rank-two derivatives, in chunks
         H_tt = likelihood.evaluate(theta).information
         parts = []
         for g, weight in enumerate(likelihood.weights):
@@ -101,26 +101,37 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
             if not cands:
                 continue
             codes, rows, cols = candidate_arrays(cands)
-            d, H_ct, h_cc = likelihood.candidate_scores(theta, g, codes, rows, cols)
-            parts.append((g, cands, codes, rows, cols, model.matrices(theta, g), weight * d, weight * H_ct, weight * h_cc))
+            blocks = [likelihood.candidate_scores(theta, g, codes[sl], rows[sl], cols[sl])
+                      for sl in _chunks(len(cands))]
+            parts.append((g, cands, codes, rows, cols, model.matrices(theta, g),
+                          [(weight * d, weight * H_ct, weight * h_cc) for d, H_ct, h_cc in blocks]))
     else:
         H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates)
+    forms = inverse_quadratic_forms(H_tt)  # one factorisation for every group and chunk
     out: list[ModificationIndex] = []
     n = likelihood.n_total
-    for g, cands, codes, rows, cols, mats, d, H_ct, h_cc in parts:
-        h = h_cc - np.einsum("ij,ij->i", H_ct, scaled_solve(H_tt, H_ct.T).T)
+    for g, cands, codes, rows, cols, mats, blocks in parts:
+        d = np.concatenate([b[0] for b in blocks])
+        h_cc = np.concatenate([b[2] for b in blocks])
+        h = h_cc - np.concatenate([forms(H_ct.T) for _, H_ct, _ in blocks])
         ok = h > 1e-10 * np.maximum(h_cc, 1e-300)
         mi = np.where(ok, 0.5 * n * d**2 / np.where(ok, h, 1.0), np.nan)
         epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
         std_epc, _ = standardize_entries(mats, codes, rows, cols, epc)
         label = table.groups[g] if table.multigroup else None
+        mi_l, epc_l, std_l = mi.tolist(), epc.tolist(), std_epc.tolist()
         out.extend(
-            ModificationIndex(kind, variables, float(mi[k]), float(epc[k]), float(std_epc[k]), label)
+            ModificationIndex(kind, variables, mi_l[k], epc_l[k], std_l[k], label)
             for k, (kind, variables, *_rest) in enumerate(cands)
             if ok[k]
         )
     out.sort(key=lambda r: -r.index)
     return out
+
+
+def _chunks(count: int) -> list[slice]:
+    """Slices of at most CHUNK candidates: their derivative blocks stay small (and in the processor's cache)."""
+    return [slice(start, start + CHUNK) for start in range(0, count, CHUNK)]
 
 
 def candidate_arrays(cands: list[Candidate]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -142,15 +153,12 @@ def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candi
         if not cands:
             continue
         codes, rows, cols = candidate_arrays(cands)
-        H_ct, h_cc, d = [], [], []
-        for start in range(0, len(cands), CHUNK):  # bounded memory for models with thousands of candidates
-            sl = slice(start, start + CHUNK)
+        blocks = []
+        for sl in _chunks(len(cands)):  # bounded memory for models with thousands of candidates
             c_sigma, c_mu = entry_derivatives(mats, codes[sl], rows[sl], cols[sl])
-            H_ct.append(group.information(c_sigma, c_mu, t_sigma, t_mu))
-            h_cc.append(group.information_diagonal(c_sigma, c_mu))
-            d.append(group.gradient(c_sigma, c_mu))
-        parts.append((g, cands, codes, rows, cols, mats, weight * np.concatenate(d), weight * np.vstack(H_ct),
-                      weight * np.concatenate(h_cc)))
+            blocks.append((weight * group.gradient(c_sigma, c_mu), weight * group.information(c_sigma, c_mu, t_sigma, t_mu),
+                           weight * group.information_diagonal(c_sigma, c_mu)))
+        parts.append((g, cands, codes, rows, cols, mats, blocks))
     return H_tt, parts
 
 

@@ -34,7 +34,7 @@ covariance, Theta the residual covariances and k the keys:
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass
+from dataclasses import dataclass
 from enum import Enum
 
 import numpy as np
@@ -70,7 +70,7 @@ class FactorReliability:
     against_keying: tuple[str, ...] = ()  # declared keying contradicted by the loadings' signs
 
     def to_dict(self) -> dict:
-        d = asdict(self)
+        d = dict(vars(self))  # every field is a number, a word or a tuple of them, converted below
         d["items"] = list(self.items)
         d["reversed"] = list(self.reversed)
         d["keying"] = self.keying.value
@@ -88,7 +88,7 @@ class Htmt:
     why_missing: str = ""
 
     def to_dict(self) -> dict:
-        out = asdict(self)
+        out = dict(vars(self))
         out["why_missing"] = self.why_missing or None
         return out
 
@@ -204,6 +204,12 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         sd_items = np.sqrt(np.diag(S))
         R = S / np.outer(sd_items, sd_items)
         first_order = list(ave_by_factor)
+        mono = {}  # mean keyed correlation among each factor's own items (each pair once: off-diagonal sum / count)
+        for f in first_order:
+            i, k = own_keys[f]
+            if len(i) >= 2:
+                R_ff = R[np.ix_(i, i)]
+                mono[f] = float(k @ R_ff @ k - np.trace(R_ff)) / (len(i) * (len(i) - 1))
         for a_pos, a in enumerate(first_order):
             for b in first_order[a_pos + 1:]:
                 (ia, ka), (ib, kb) = own_keys[a], own_keys[b]
@@ -213,9 +219,8 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
                                      f"{'has' if len(short) == 1 else 'have'} fewer than two items of its own, so there "
                                      f"is no correlation within it to compare with"))
                     continue
-                hetero = (ka[:, None] * R[np.ix_(ia, ib)] * kb[None, :]).mean()
-                mono_a = (ka[:, None] * R[np.ix_(ia, ia)] * ka[None, :])[np.triu_indices(len(ia), 1)].mean()
-                mono_b = (kb[:, None] * R[np.ix_(ib, ib)] * kb[None, :])[np.triu_indices(len(ib), 1)].mean()
+                hetero = float(ka @ R[np.ix_(ia, ib)] @ kb) / (len(ia) * len(ib))
+                mono_a, mono_b = mono[a], mono[b]
                 if mono_a > 0 and mono_b > 0:
                     htmt.append(Htmt(latent[a], latent[b], float(abs(hetero) / np.sqrt(mono_a * mono_b))))
                 else:

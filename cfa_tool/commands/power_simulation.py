@@ -11,7 +11,8 @@ from cfa_tool.commands.common import check_output, emit, inputs_of, progress
 def add_parser(sub) -> None:
     mc = sub.add_parser("power-simulation", help="Monte Carlo power, bias and coverage for a model with population values")
     mc.add_argument("model", metavar="MODEL", help="model file; 'start' and 'fix' statements give population values")
-    mc.add_argument("--n", type=int, required=True, help="sample size of each simulated data set")
+    mc.add_argument("--n", required=True, help="sample size of each simulated data set, or several separated by commas "
+                    "(100,200,400) for power by sample size")
     mc.add_argument("--replications", type=int, default=500, help="number of data sets (default 500)")
     mc.add_argument("--alpha", type=float, default=0.05, help="significance level (default .05)")
     mc.add_argument("--population-from", metavar="RESULT", help="take the population values from an earlier fit of "

@@ -150,7 +150,7 @@ class NormalLikelihood:
         Vm = V.T @ parts.mean_gradient if parts.mean_gradient is not None else None
         cand = entry_basis(codes, rows, cols, self.model.p, self.model.m, with_pairs=False)
         d, H_ce, h = candidate_blocks(cand, self._basis[g], K, Q, Vm, a)
-        return d, H_ce @ self._J[g], h
+        return d, (H_ce if self.model.identity_J[g] else H_ce @ self._J[g]), h
 
     def _evaluate(self, theta: np.ndarray, with_information: bool) -> Evaluation | None:
         if len(self.weights) == 1 and self.model.identity_J[0]:  # one group, each parameter one entry

@@ -142,7 +142,10 @@ def candidate_blocks(cand: EntryBasis, model: EntryBasis, K: np.ndarray, Q: np.n
     uc, vc, cc = cand.u, cand.v, cand.c
     ue, ve, ce = model.u, model.v, model.c
     d = 2.0 * cc * Q[uc, vc]
-    H = 2.0 * np.outer(cc, ce) * (K[np.ix_(uc, ue)] * K[np.ix_(vc, ve)] + K[np.ix_(uc, ve)] * K[np.ix_(vc, ue)])
+    Ku, Kv = K[:, ue], K[:, ve]  # K is symmetric, so K[u_c, u_e] = Ku[u_c]: whole rows gathered
+    H = Ku[uc] * Kv[vc]
+    H += Kv[uc] * Ku[vc]
+    H *= (2.0 * cc)[:, None] * ce
     h = 2.0 * cc**2 * (K[uc, uc] * K[vc, vc] + K[uc, vc] ** 2)
     if Vm is not None:
         sc, se = mean_coefficients(cand, a), mean_coefficients(model, a)

@@ -68,6 +68,24 @@ def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) 
     return dd * np.linalg.solve(scaled, dd * b)
 
 
+def inverse_quadratic_forms(H: np.ndarray):
+    """A function of B giving b_k' H^-1 b_k for every column b_k of B, from one Cholesky factorisation
+    of the Jacobi-scaled H (H = L L': the squared column norms of L^-1 B, one triangular solve);
+    the general solve when H is not positive definite."""
+    if H.size == 0:
+        return lambda B: np.zeros(B.shape[1])
+    d = _scales(H)
+    factor, info = lapack.dpotrf(H * (d[:, None] * d), lower=1, clean=1)
+    if info != 0:
+        return lambda B: np.einsum("ij,ij->j", B, scaled_solve(H, B))
+
+    def forms(B: np.ndarray) -> np.ndarray:
+        X, _ = lapack.dtrtrs(factor, d[:, None] * B, lower=1)
+        return np.einsum("ij,ij->j", X, X)
+
+    return forms
+
+
 def scaled_inverse(H: np.ndarray) -> np.ndarray:
     d = _scales(H)
     dd = d[:, None] * d

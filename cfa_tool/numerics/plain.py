@@ -8,8 +8,23 @@ import math
 import numpy as np
 
 
+_PLAIN = frozenset((str, int, bool, type(None)))
+
+
 def clean(value):
-    """JSON-safe: NaN and infinities become None, numpy scalars become Python numbers, tuples lists."""
+    """JSON-safe: NaN and infinities become None, numpy scalars become Python numbers, tuples lists.
+    A list of numbers whose values are all finite is copied as it is (its numbers checked at once)."""
+    kind = type(value)
+    if kind is float:
+        return value if math.isfinite(value) else None
+    if kind in _PLAIN:
+        return value
+    if kind is list and value and type(value[0]) is float:
+        if all(type(v) is float for v in value) and math.isfinite(sum(value)):  # a NaN or infinity makes the sum one
+            return list(value)
+        return [clean(v) for v in value]
+    if kind is dict:
+        return {k: clean(v) for k, v in value.items()}
     if isinstance(value, (float, np.floating)):
         value = float(value)
         return value if math.isfinite(value) else None

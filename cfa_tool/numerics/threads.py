@@ -1,12 +1,21 @@
 """BLAS threads for small problems: one thread is faster than several when the matrices are too
-small to share out (a factor model of a few dozen items)."""
+small to share out (a factor model of a few dozen items), and on a machine that other programs keep
+busy, several threads per process take turns with them and slow every one down (a 120-item fit took
+seconds instead of a tenth of a second with two threads on this two-core machine under load).
+
+Where threads are set (one rule, so that they never oversubscribe the cores):
+
+* a fit (its data moments, estimation and report) of up to :data:`SMALL_MODEL` items runs with one BLAS thread;
+* worker processes of bootstraps, cutoffs and power simulations (``workflows.parallel``) run with one
+  thread each, the parallelism being across processes.
+"""
 
 from __future__ import annotations
 
 import contextlib
 from functools import lru_cache
 
-SMALL_MODEL = 80  # indicators; below this one BLAS thread is faster than several
+SMALL_MODEL = 250  # indicators; up to this one BLAS thread is never much slower than several and never oversubscribes
 
 
 def blas_threads_for(p: int):

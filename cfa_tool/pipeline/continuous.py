@@ -18,7 +18,7 @@ from cfa_tool.assessment.diagnostics import case_diagnostics, normalized_residua
 from cfa_tool.assessment.fit_indices import fit_indices, normal_theory_parts, srmr, srmr_value
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
 from cfa_tool.assessment.modification import modification_indices
-from cfa_tool.assessment.normality import mardia
+from cfa_tool.assessment.normality import mardia, whitened_rows
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
@@ -273,6 +273,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     group_results = []
     for g, ((label, m), gm) in enumerate(zip(groups, likelihood.groups)):
         sigma = mats[g].implied_covariance()
+        whitened = whitened_rows(gm.rows) if options.diagnostics and gm.rows is not None else None  # shared below
         share = likelihood.n_total * likelihood.weights[g] * likelihood.group_discrepancy(theta, g) if est.converged else None
         group_results.append(
             GroupResult(
@@ -286,9 +287,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 residual_correlations=correlation_residuals(gm.covariance, sigma),
                 sample_mean=gm.mean,
                 implied_mean=mats[g].implied_mean() if means else None,
-                normality=mardia(gm.rows) if options.diagnostics and gm.rows is not None else None,
+                normality=mardia(gm.rows, whitened) if whitened is not None else None,
                 **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics,
-                                     spec.reverse_keyed or None, spec.method_factors),
+                                     spec.reverse_keyed or None, spec.method_factors, whitened),
             )
         )
     for g, result in enumerate(group_results):
@@ -345,7 +346,8 @@ def estimate_rows(table: ParameterTable, values: np.ndarray, inference, standard
 
 
 def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool,
-                       declared: dict[str, tuple[float, float]] | None, not_traits: frozenset[str] = frozenset()) -> dict:
+                       declared: dict[str, tuple[float, float]] | None, not_traits: frozenset[str] = frozenset(),
+                       whitened: tuple[np.ndarray, float] | None = None) -> dict:
     """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often);
     ``declared``: the reverse-keyed items of a 'reversed' statement, if any."""
     if not wanted:
@@ -355,7 +357,7 @@ def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: n
     out = {"reliability": tuple(factors), "htmt": tuple(htmt),
            "normalized_residuals": normalized_residuals(gm.covariance, sigma, gm.n_obs)}
     if gm.rows is not None and not np.isnan(gm.rows).any():
-        unusual, influential = case_diagnostics(gm.rows, sigma, m.row_numbers)
+        unusual, influential = case_diagnostics(gm.rows, sigma, m.row_numbers, whitened=whitened)
         out.update(unusual_cases=tuple(unusual), influential_cases=tuple(influential))
     return out
 

@@ -296,7 +296,8 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
         frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
         notes = list(notes) + design_notes
     if ordinal_items:
-        result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
+        with blas_threads_for(len(spec.observed_names)):
+            result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
         labels = tuple(g.label for g in result.groups) if group is not None else None
         summary = missing_summary(frame, spec.observed_names)  # the patterns and coverage, as for continuous items
         gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())

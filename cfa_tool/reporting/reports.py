@@ -16,7 +16,7 @@ def kind_of(result: object) -> ResultKind:
     from cfa_tool.workflows.explore import ExploreResult
     from cfa_tool.workflows.factor_scores import ScoreResult
     from cfa_tool.workflows.invariance import InvarianceResult
-    from cfa_tool.workflows.montecarlo import MonteCarloPower
+    from cfa_tool.workflows.montecarlo import MonteCarloPower, PowerCurve
     from cfa_tool.workflows.power import PowerResult
     from cfa_tool.workflows.replication import Replication, Replications
     from cfa_tool.workflows.simulation import SimulatedData
@@ -25,7 +25,7 @@ def kind_of(result: object) -> ResultKind:
                           (ResultKind.COMPARE, (Comparison,)), (ResultKind.INVARIANCE, (InvarianceResult,)),
                           (ResultKind.REPLICATE, (Replication, Replications)), (ResultKind.BOOTSTRAP, (BootstrapResult,)),
                           (ResultKind.CUTOFFS, (CutoffResult,)), (ResultKind.POWER, (PowerResult,)),
-                          (ResultKind.POWER_SIMULATION, (MonteCarloPower,)), (ResultKind.SIMULATE, (SimulatedData,)),
+                          (ResultKind.POWER_SIMULATION, (MonteCarloPower, PowerCurve)), (ResultKind.SIMULATE, (SimulatedData,)),
                           (ResultKind.SCORES, (ScoreResult,)), (ResultKind.EXPLORE, (ExploreResult,))):
         if isinstance(result, classes):
             return kind

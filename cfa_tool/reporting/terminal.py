@@ -22,6 +22,9 @@ class SafeConsole(Console):
     group labels, titles and data values from a user's files cannot clear the screen, set the
     window title or move the cursor.  Every string (table cells, titles, notes) passes here."""
 
+    def on_broken_pipe(self) -> None:  # the command line's handler says nothing more and exits 141
+        raise BrokenPipeError
+
     def render_str(self, text: str, **options):  # type: ignore[override]
         return super().render_str(printable(text, keep_newlines=True), **options)
 

@@ -394,6 +394,8 @@ def _percent(share: float) -> str:
 
 
 def montecarlo_report(result) -> Report:
+    if hasattr(result, "results"):  # a power curve: several sample sizes
+        return power_curve_report(result)
     lines = [f"{result.converged} of {result.replications} replications converged "
              f"({100 * result.converged / result.replications:.1f}%)."]
     if result.defaulted:
@@ -412,6 +414,23 @@ def montecarlo_report(result) -> Report:
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
                   None, tuple(lines), (table,))
+
+
+def power_curve_report(curve) -> Report:
+    """Power per parameter (rows) and sample size (columns), with each size's convergence."""
+    first = curve.results[0]
+    lines = ["Converged: " + ", ".join(f"{r.converged} of {r.replications} at N = {r.n_obs}" for r in curve.results) + "."]
+    if first.defaulted:
+        lines.append("Population values not given in the model file took defaults: " + ", ".join(first.defaulted))
+    rows = [[p.label, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, p in enumerate(first.parameters)]
+    values = [[p.label, *(r.parameters[k].power for r in curve.results)] for k, p in enumerate(first.parameters)]
+    table = _table("power_by_sample_size", "Power per parameter and sample size",
+                   [("Parameter", "l")] + [(f"N = {n}", "r") for n in curve.sample_sizes], rows,
+                   f"Power: share of replications in which the parameter differs from zero at alpha "
+                   f"{unit(first.alpha, 2)}. Coverage and bias at each sample size are in the JSON (--json).",
+                   values=(["Parameter", *(f"Power at N = {n}" for n in curve.sample_sizes)], values))
+    return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {first.replications} replications "
+                                               f"per size (seed {first.seed})", None, tuple(lines), (table,))
 
 
 # ---------------------------------------------------------------- simulate

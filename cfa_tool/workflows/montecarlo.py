@@ -9,6 +9,7 @@ p < alpha); plus the convergence rate (Muthen & Muthen 2002).
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Sequence
 
 import numpy as np
 from cfa_tool.numerics import distributions as dist
@@ -58,6 +59,26 @@ class MonteCarloPower(Presentable):
                 "parameters": [p.to_dict() for p in self.parameters], "population_defaults": list(self.defaulted)}
 
 
+@dataclass(frozen=True)
+class PowerCurve(Presentable):
+    """Monte Carlo power at several sample sizes: one simulation per size (as :func:`monte_carlo_power`
+    does for one), each with the same number of replications and its own seeds drawn from one seed."""
+
+    results: tuple[MonteCarloPower, ...]
+
+    @property
+    def sample_sizes(self) -> tuple[int, ...]:
+        return tuple(r.n_obs for r in self.results)
+
+    def to_dict(self) -> dict:
+        first = self.results[0]
+        return {"sample_sizes": list(self.sample_sizes), "replications": first.replications, "alpha": first.alpha,
+                "seed": first.seed, "converged": [r.converged for r in self.results],
+                "power": [{"label": p.label, "population": p.population,
+                           "power": [r.parameters[k].power for r in self.results]} for k, p in enumerate(first.parameters)],
+                "by_sample_size": [r.to_dict() for r in self.results], "population_defaults": list(first.defaulted)}
+
+
 def _replicate(task) -> tuple[bool, np.ndarray, np.ndarray]:
     spec, sigma, names, n, seed, start = task
     rows = simulate_rows(sigma, n, np.random.default_rng(seed))
@@ -65,9 +86,11 @@ def _replicate(task) -> tuple[bool, np.ndarray, np.ndarray]:
     return fit.converged, fit.theta, fit.se if fit.se is not None else np.full(0, np.nan)
 
 
-def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int = 1, alpha: float = 0.05,
-                      workers: int | None = None, scheduler: str | None = None, progress=None,
-                      population=None) -> MonteCarloPower:
+def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications: int = 500, seed: int = 1,
+                      alpha: float = 0.05, workers: int | None = None, scheduler: str | None = None, progress=None,
+                      population=None) -> MonteCarloPower | PowerCurve:
+    """Monte Carlo power at one sample size, or a :class:`PowerCurve` when ``n_obs`` lists several
+    (a list, or text such as '100,200,400'); every replication of every size runs in one batch of tasks."""
     from cfa_tool.pipeline.inputs import continuous_only, load_spec
 
     spec = continuous_only(load_spec(spec), "power-simulation")
@@ -75,21 +98,31 @@ def monte_carlo_power(spec: Spec, n_obs: int, replications: int = 500, seed: int
     seed = check.seed(seed)
     alpha = check.probability("alpha (the significance level)", alpha)
     p = len(spec.observed_names)
-    n_obs = check.observations(n_obs, "the sample size")
-    if n_obs <= p + 1:
-        raise OptionError(f"the sample size {n_obs} is too small for {p} variables: each simulated data set needs more "
-                          f"rows than variables (and a factor analysis far more)")
-    if n_obs * p > check.MAX_SIMULATED_CELLS:
-        raise OptionError(f"{n_obs:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values per "
-                          f"simulated data set; plan with a smaller sample size")
+    sizes = check.sample_sizes(n_obs)
+    for n in sizes:
+        if n <= p + 1:
+            raise OptionError(f"the sample size {n} is too small for {p} variables: each simulated data set needs more "
+                              f"rows than variables (and a factor analysis far more)")
+        if n * p > check.MAX_SIMULATED_CELLS:
+            raise OptionError(f"{n:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values per "
+                              f"simulated data set; plan with a smaller sample size")
     population = population_from_spec(spec, population)
-    table = population.table
-    seeds = np.random.SeedSequence(seed).generate_state(replications)
-    tasks = [(spec, population.sigma, population.observed, n_obs, int(s), population.theta) for s in seeds]
+    # one size keeps the seeds it always had; several take one stream per size from the same seed
+    streams = [np.random.SeedSequence(seed)] if len(sizes) == 1 else np.random.SeedSequence(seed).spawn(len(sizes))
+    tasks = [(spec, population.sigma, population.observed, n, int(s), population.theta)
+             for n, stream in zip(sizes, streams) for s in stream.generate_state(replications)]
     results = run_tasks(_replicate, tasks, workers, scheduler, progress)
+    powers = tuple(_summary(population, n, replications, seed, alpha, results[k * replications:(k + 1) * replications])
+                   for k, n in enumerate(sizes))
+    return powers[0] if len(sizes) == 1 else PowerCurve(powers)
+
+
+def _summary(population, n_obs: int, replications: int, seed: int, alpha: float, results: list) -> MonteCarloPower:
+    """Power, bias and coverage of one sample size's replications."""
+    table = population.table
     ok = [(theta, se) for converged, theta, se in results if converged]
     if not ok:
-        raise OptionError("no replication converged; check the population values and the sample size")
+        raise OptionError(f"no replication converged at N = {n_obs}; check the population values and the sample size")
     # SEs of theta: each theta index appears as an entry with one coefficient 1
     entry_of = {}
     for e, par in enumerate(table.parameters):
