@@ -1,8 +1,9 @@
 """cfa_tool: confirmatory factor analysis for questionnaire research.
 
 Entry points: :func:`fit` (fit a model to data), :func:`check` (validate a
-model against data without fitting), :func:`scores` (factor scores of every row)
-and :func:`explore` (how many factors, an exploratory solution and a draft model).  Heavy modules load on first use.
+model against data without fitting), :func:`scores` (factor scores of every row),
+:func:`explore` (how many factors, an exploratory solution and a draft model) and :func:`align`
+(group factor means under approximate invariance across many groups).  Heavy modules load on first use.
 """
 
 from __future__ import annotations
@@ -10,13 +11,14 @@ from __future__ import annotations
 from cfa_tool import views
 from cfa_tool.version import __version__
 
-__all__ = ["fit", "check", "bootstrap", "cutoffs", "scores", "explore", "compare", "invariance", "replicate",
+__all__ = ["fit", "check", "bootstrap", "cutoffs", "scores", "explore", "compare", "invariance", "align", "replicate",
            "split_half", "power", "power_simulation", "simulate", "parse_model", "__version__"]
 
 # workflow entry points: public name -> (module, function)
 _WORKFLOWS = {
     "compare": ("cfa_tool.workflows.compare", "compare"),
     "invariance": ("cfa_tool.workflows.invariance", "invariance"),
+    "align": ("cfa_tool.workflows.alignment", "align"),
     "replicate": ("cfa_tool.workflows.replication", "replicate"),
     "split_half": ("cfa_tool.workflows.replication", "split_half"),
     "power": ("cfa_tool.workflows.power", "plan"),

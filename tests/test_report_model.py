@@ -117,11 +117,12 @@ def _commands(folder: Path) -> dict[str, list]:
         "fit": ["fit", folder / "heywood.cfa", "--data", data],
         "scores": ["scores", a, "--data", data, "--output", folder / "scores.csv"],
         "explore": ["explore", "--data", data, "--items", "x1..x9", "--factors", 3, "--replications", 20],
+        "align": ["align", a, "--data", data, "--group-column", "school", "--trials", 2],
     }
 
 
 @pytest.mark.parametrize("command", ["compare", "invariance", "replicate", "bootstrap", "cutoffs", "power",
-                                     "power-simulation", "simulate", "fit", "scores", "explore"])
+                                     "power-simulation", "simulate", "fit", "scores", "explore", "align"])
 def test_every_format_holds_the_same_tables_and_report_writes_them_again(command, files, capsys, monkeypatch):
     monkeypatch.setenv("COLUMNS", "80")  # the width of a terminal the output is not connected to
     out = files / command

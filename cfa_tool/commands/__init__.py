@@ -13,7 +13,7 @@ from importlib import import_module
 #: command name -> module, in the order of the help (each imported when its parser is built or it runs)
 MODULES = {name: f"cfa_tool.commands.{name.replace('-', '_')}" for name in (
     "fit", "check", "compare", "invariance", "replicate", "bootstrap", "power", "power-simulation", "simulate",
-    "cutoffs", "demo", "scores", "explore", "report")}
+    "cutoffs", "demo", "scores", "explore", "align", "report")}
 
 
 def add_parsers(sub) -> None:

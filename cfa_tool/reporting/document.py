@@ -26,6 +26,7 @@ class ResultKind(enum.Enum):
     SIMULATE = "simulate"
     SCORES = "scores"
     EXPLORE = "explore"
+    ALIGN = "align"
 
 
 @dataclass(frozen=True)

@@ -10,6 +10,7 @@ from cfa_tool.reporting.document import Report, ResultKind
 def kind_of(result: object) -> ResultKind:
     """The command whose result ``result`` is."""
     from cfa_tool.pipeline.results import CheckResult, FitResult
+    from cfa_tool.workflows.alignment import AlignmentResult
     from cfa_tool.workflows.bootstrap import BootstrapResult
     from cfa_tool.workflows.compare import Comparison
     from cfa_tool.workflows.cutoffs import CutoffResult
@@ -26,7 +27,8 @@ def kind_of(result: object) -> ResultKind:
                           (ResultKind.REPLICATE, (Replication, Replications)), (ResultKind.BOOTSTRAP, (BootstrapResult,)),
                           (ResultKind.CUTOFFS, (CutoffResult,)), (ResultKind.POWER, (PowerResult,)),
                           (ResultKind.POWER_SIMULATION, (MonteCarloPower, PowerCurve)), (ResultKind.SIMULATE, (SimulatedData,)),
-                          (ResultKind.SCORES, (ScoreResult,)), (ResultKind.EXPLORE, (ExploreResult,))):
+                          (ResultKind.SCORES, (ScoreResult,)), (ResultKind.EXPLORE, (ExploreResult,)),
+                          (ResultKind.ALIGN, (AlignmentResult,))):
         if isinstance(result, classes):
             return kind
     raise TypeError(f"no report for a {type(result).__name__}")
@@ -47,6 +49,10 @@ def report_of(result: object) -> Report:
         from cfa_tool.reporting.explore_report import explore_report
 
         return explore_report(result)
+    if kind is ResultKind.ALIGN:
+        from cfa_tool.reporting.align_report import alignment_report
+
+        return alignment_report(result)
     from cfa_tool.reporting import workflow_tables
 
     return workflow_tables.BUILDERS[kind](result)

@@ -1,0 +1,208 @@
+"""The report of an alignment run (cfa_tool.workflows.alignment): the shared report tables (ReportTable),
+drawn in the terminal, HTML and Markdown.  Problems of the configural solution and the cautions come first."""
+
+from __future__ import annotations
+
+from cfa_tool.reporting import tables as T
+from cfa_tool.reporting.numbers import num, p_value, unit
+from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable, _table
+
+ALIGNMENT_CAUTION = (
+    "Aligned means compare groups under approximate invariance: they are the means that make the loadings and "
+    "intercepts as alike across groups as the simplicity loss allows, not means under tested scalar invariance. The "
+    "25% share and the .98 correlation are the method's authors' rules of thumb, not tests.")
+
+
+#: what closes every view of the report
+CLOSING_CAUTIONS = (ALIGNMENT_CAUTION, GUIDE_NOTE, HIGH_STAKES_NOTE)
+
+
+def title(result) -> str:
+    return f"Alignment across {result.group_column}: {result.configural.model_name}"
+
+
+def _percent(share: float) -> str:
+    return f"{100 * share:.0f}%"
+
+
+def header_lines(result) -> list[str]:
+    from cfa_tool.workflows.alignment import EPSILON, STANDARD_ERRORS
+
+    fit = result.configural
+    total = sum(result.sizes)
+    lines = [f"Model file: {fit.model_source}",
+             f"Data: {fit.data.source}; {total} rows in {len(result.groups)} groups of {result.group_column} "
+             f"(smallest {min(result.sizes)}, largest {max(result.sizes)})",
+             f"Reference group: {result.reference_group}; {result.reference_mean.phrase}",
+             f"Configural model (every factor's mean 0 and variance 1 in every group), {fit.estimator}: {_fit_words(fit)}",
+             f"Alignment (Asparouhov & Muthen 2014): total simplicity loss f(x) = sqrt(sqrt(x^2 + {EPSILON:g})) over every "
+             f"pair of groups, weighted by sqrt(N1 N2), for every loading and intercept",
+             f"Standard errors: {STANDARD_ERRORS}",
+             f"Non-invariant loadings and intercepts: {_percent(result.noninvariant_share)} of all, flagged at level "
+             f"{unit(result.flag_level, 3)}"]
+    return lines
+
+
+def _fit_words(fit) -> str:
+    f = fit.fit
+    if f is None:
+        return "no fit statistics"
+    return (f"chi-square {f.chi_square:.2f} (df {f.df}), p {p_value(f.p_value)}, CFI {unit(f.cfi)}, RMSEA {unit(f.rmsea)}, "
+            f"SRMR {unit(f.srmr)}")
+
+
+def caution_lines(result) -> list[str]:
+    return [w[:1].upper() + w[1:] + "." for w in result.warnings]
+
+
+def means_table(result, k: int) -> ReportTable:
+    from cfa_tool.workflows.alignment import ReferenceMean
+
+    factor = result.factors[k]
+    shares = dict(result.group_shares())
+    rows = [[g.group, str(g.rows), num(g.mean), num(g.mean_se), num(g.variance), num(g.variance_se),
+             _percent(shares[g.group])] for g in factor.groups]
+    ranked = sorted(factor.groups, key=lambda g: -g.mean)
+    note = (f"Groups in the data's order, the reference group first. Highest mean: {ranked[0].group}; lowest: "
+            f"{ranked[-1].group}. The reference group's "
+            + ("mean and variance are fixed (no standard error)." if result.reference_mean is ReferenceMean.ZERO
+               else "variance is fixed at 1 (no standard error).")
+            + " Non-invariant: the group's share of flagged loadings and intercepts over every item.")
+    values = (["group", "rows", "mean", "mean_se", "variance", "variance_se", "noninvariant_share"],
+              [[g.group, g.rows, g.mean, g.mean_se, g.variance, g.variance_se, shares[g.group]] for g in factor.groups])
+    return _table(f"aligned_means_{k}", f"Aligned factor means and variances of {factor.factor}",
+                  [("Group", "l"), ("Rows", "r"), ("Mean", "r"), ("SE", "r"), ("Variance", "r"), ("SE", "r"),
+                   ("Non-invariant", "r")], rows, note, values=values)
+
+
+def item_table(result, k: int) -> ReportTable:
+    from cfa_tool.workflows.alignment import CAUTION_SHARE
+
+    factor = result.factors[k]
+    by_item = {(p.item, p.kind): p for p in factor.invariance}
+    shares = {(f, i): s for f, i, s in result.item_shares()}
+    rows, flagged = [], []
+    for n, item in enumerate(factor.items):
+        loading, intercept = by_item[(item, "loading")], by_item[(item, "intercept")]
+        share = shares[(factor.factor, item)]
+        rows.append([item, _percent(share), num(loading.value), num(intercept.value),
+                     _groups(loading.noninvariant_groups), _groups(intercept.noninvariant_groups)])
+        if share > CAUTION_SHARE:
+            flagged.append(n)
+    return _table(f"noninvariance_{k}", f"Non-invariant loadings and intercepts of {factor.factor}, by item",
+                  [("Item", "l"), ("Share", "r"), ("Loading", "r"), ("Intercept", "r"), ("Loading differs in", "l"),
+                   ("Intercept differs in", "l")], rows,
+                  "Share: the item's share of non-invariant values over groups and both parameters; rows above "
+                  f"{_percent(CAUTION_SHARE)} are marked. Loading and Intercept: the average aligned value in the groups "
+                  "where the parameter is invariant. Differs in: the groups flagged, by pairwise Wald tests and tests "
+                  "against the invariant groups' average (after Asparouhov & Muthen 2014).", flagged=tuple(flagged))
+
+
+def _groups(names: tuple[str, ...]) -> str:
+    return ", ".join(names) if names else "none"
+
+
+#: the width every table of the report keeps to (a terminal's 80 columns)
+WIDTH = 80
+
+
+def item_chunks(result, items: tuple[str, ...]) -> list[tuple[str, ...]]:
+    """The items in runs narrow enough that a table of groups by items keeps to :data:`WIDTH` columns (a value such as
+    '3.643 *' and each column's two spaces of padding; the group column as wide as the longest label, up to 20)."""
+    budget = WIDTH - min(max(len(g) for g in result.groups), 20) - 2
+    chunks: list[tuple[str, ...]] = [()]
+    used = 0
+    for item in items:
+        width = max(len(item), 7) + 2
+        if chunks[-1] and used + width > budget:
+            chunks.append(())
+            used = 0
+        chunks[-1] += (item,)
+        used += width
+    return chunks
+
+
+def parameter_tables(result, k: int, kind: str) -> list[ReportTable]:
+    """The aligned loadings (or intercepts) of factor k, groups by items, in as many tables as the width needs."""
+    factor = result.factors[k]
+    values = {(p.group, p.item): p for p in factor.parameters if p.kind == kind}
+    word = "loadings" if kind == "loading" else "intercepts"
+    chunks = item_chunks(result, factor.items)
+    out = []
+    for n, items in enumerate(chunks):
+        rows = [[g] + [num(values[(g, item)].aligned) + ("" if values[(g, item)].invariant else " *") for item in items]
+                for g in result.groups]
+        data = (["group", "item", "configural", "aligned", "se", "invariant"],
+                [[g, item, values[(g, item)].configural, values[(g, item)].aligned, values[(g, item)].se,
+                  values[(g, item)].invariant] for g in result.groups for item in items])
+        which = f", items {items[0]} to {items[-1]}" if len(chunks) > 1 and len(items) > 1 else \
+            f", item {items[0]}" if len(chunks) > 1 else ""
+        out.append(_table(f"aligned_{word}_{k}" + (f"_{n + 1}" if len(chunks) > 1 else ""),
+                          f"Aligned {word} of {factor.factor}{which}", [("Group", "l")] + [(item, "r") for item in items],
+                          rows, f"* flagged as non-invariant. The standard errors and the configural {word} are in the "
+                                f"JSON result.", values=data))
+    return out
+
+
+def check_table(result) -> ReportTable | None:
+    from cfa_tool.workflows.alignment import TRUSTED_CORRELATION
+
+    check = result.check
+    if check is None:
+        return None
+    rows = [[c.factor, unit(c.mean_correlation), unit(c.lowest_mean_correlation), unit(c.variance_correlation),
+             unit(c.lowest_variance_correlation), num(c.mean_error), {True: "yes", False: "no", None: ""}[c.trusted]]
+            for c in check.factors]
+    return _table("trust_check", "Monte Carlo check of the aligned means",
+                  [("Factor", "l"), ("Means r", "r"), ("lowest", "r"), ("Variances r", "r"), ("lowest", "r"),
+                   ("RMSE of means", "r"), (f"r >= {unit(TRUSTED_CORRELATION, 2)}", "l")], rows,
+                  f"{check.completed} of {check.trials} simulated data sets (seed {check.seed}), each group's rows drawn "
+                  f"from the aligned solution with the group's size (complete rows, normal), refitted and realigned: the "
+                  f"correlation over groups "
+                  f"of the true and the estimated means and variances (average over data sets, and the lowest). The "
+                  f"method's authors ask for a correlation of means of about {unit(TRUSTED_CORRELATION, 2)} or more (a "
+                  f"rule of thumb)." + (" With fewer than three groups a correlation over groups is not defined."
+                                         if len(result.groups) < 3 else ""),
+                  flagged=tuple(n for n, c in enumerate(check.factors) if c.trusted is False))
+
+
+def group_table(result) -> ReportTable:
+    from cfa_tool.workflows.alignment import CAUTION_SHARE
+
+    rows = [[g, _percent(s)] for g, s in result.group_shares()]
+    return _table("noninvariance_by_group", "Share of non-invariant loadings and intercepts, by group",
+                  [("Group", "l"), ("Non-invariant", "r")], rows,
+                  "Over every item of every factor.", flagged=tuple(n for n, (_, s) in enumerate(result.group_shares())
+                                                                    if s > CAUTION_SHARE))
+
+
+def alignment_tables(result) -> list[ReportTable]:
+    out = []
+    for k in range(len(result.factors)):
+        out += [means_table(result, k), item_table(result, k)]
+    if len(result.factors) > 1:
+        out.append(group_table(result))
+    check = check_table(result)
+    if check is not None:
+        out.append(check)
+    for k in range(len(result.factors)):
+        out += parameter_tables(result, k, "loading") + parameter_tables(result, k, "intercept")
+    return out
+
+
+def notes(result) -> list[str]:
+    out = [n[:1].upper() + n[1:] + "." for n in result.notes] + list(result.configural.warnings)
+    if result.check is None:
+        out.append("The Monte Carlo check of the aligned means was not run (0 trials).")
+    return out
+
+
+def alignment_report(result):
+    """The alignment's report as the one report model (cfa_tool.reporting.document.Report): what every view and
+    file shows, and what a saved result holds."""
+    from cfa_tool.reporting.document import Report, ResultKind
+
+    return Report(ResultKind.ALIGN, title(result), T.problem_notice(result.configural),
+                  tuple(header_lines(result)) + tuple(f"Caution: {line}" for line in caution_lines(result)),
+                  tuple(alignment_tables(result)), tuple(notes(result)), CLOSING_CAUTIONS,
+                  problem_table=T.problem_table(result.configural))
