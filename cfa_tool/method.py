@@ -167,6 +167,8 @@ class FitMethod:
             text += " with Yuan-Bentler scaled test and robust (Huber-White) standard errors"
         if self.full_information:
             text += " (full information, incomplete rows included)"
+        if not self.test.robust and self.information in (Information.EXPECTED, Information.OBSERVED):
+            text += f", standard errors from the {self.information.label}"
         return text
 
     def to_dict(self) -> dict:

@@ -61,3 +61,16 @@ def test_compare_with_robust_gives_the_scaled_difference_tests():
     assert proc.returncode == 0, proc.stderr
     methods = {t["method"] for t in json.loads(proc.stdout)["tests"]}
     assert any("Satorra-Bentler" in m for m in methods), methods
+
+
+def test_the_source_of_the_standard_errors_is_stated():
+    # found by a hostile trial: --standard-errors-from observed changed the SEs, and no view said so
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    expected = cfa_tool.fit(THREE_FACTORS, _hs())
+    observed = cfa_tool.fit(THREE_FACTORS, _hs(), information="observed")
+    assert expected.estimator.endswith("standard errors from the expected information")
+    assert observed.estimator.endswith("standard errors from the observed information")
+    assert "with standard errors from the observed information" in methods_paragraph(observed)
+    robust = cfa_tool.fit(THREE_FACTORS, _hs(), test="robust")
+    assert "information" not in robust.estimator and "robust standard errors" in robust.estimator

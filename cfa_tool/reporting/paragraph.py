@@ -11,7 +11,7 @@ that from the result's model description, never from a generic template.
 
 from __future__ import annotations
 
-from cfa_tool.method import FitTest, Items, MissingData
+from cfa_tool.method import Information, FitTest, Items, MissingData
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.numbers import unit
@@ -45,12 +45,13 @@ def _estimator_phrase(result) -> str:
         extra = " and polyserial" if method.items is Items.MIXED else ""
         return (f"{method.weighting.label} least squares on polychoric{extra} correlations of the ordinal items, with "
                 f"robust standard errors")
-    if method.full_information:
-        base = "full-information maximum likelihood"
-        return base + (" with the Yuan-Bentler scaled test and robust standard errors" if result.robust is not None else "")
+    base = "full-information maximum likelihood" if method.full_information else "maximum likelihood"
     if result.robust is not None:
-        return "maximum likelihood with the Satorra-Bentler scaled test and robust standard errors"
-    return "maximum likelihood"
+        test = "Yuan-Bentler" if method.full_information else "Satorra-Bentler"
+        return f"{base} with the {test} scaled test and robust standard errors"
+    if method.information in (Information.EXPECTED, Information.OBSERVED):  # where the standard errors come from
+        return f"{base}, with standard errors from the {method.information.label}"
+    return base
 
 
 def _test_phrase(test: FitTest) -> str:

@@ -108,7 +108,9 @@ def comparison_report(comparison) -> Report:
     # one column per model, one row per index: readable in 80 columns for the usual two to four models
     robust_rows = any(r.robust is not None for r in comparison.results)
     cells = [_comparison_cells(r, robust_rows) for r in comparison.results]
-    labels = _COMPARISON_ROWS + (_ROBUST_ROWS if robust_rows else ())
+    tests = sorted({r.robust.test.label for r in comparison.results if r.robust is not None})
+    scaled = f"Scaled chi-square ({', '.join(tests)})" if tests else _ROBUST_ROWS[0]  # the robust test named
+    labels = _COMPARISON_ROWS + ((scaled, *_ROBUST_ROWS[1:]) if robust_rows else ())
     rows = [[label, *[c[0][k] for c in cells]] for k, label in enumerate(labels)]
     bad = any(r.converged and not r.admissible for r in comparison.results)
     value_columns = ["Model", *_COMPARISON_VALUES, *(_ROBUST_VALUES if robust_rows else ())]

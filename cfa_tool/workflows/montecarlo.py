@@ -91,9 +91,10 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
                       population=None) -> MonteCarloPower | PowerCurve:
     """Monte Carlo power at one sample size, or a :class:`PowerCurve` when ``n_obs`` lists several
     (a list, or text such as '100,200,400'); every replication of every size runs in one batch of tasks."""
-    from cfa_tool.pipeline.inputs import continuous_only, load_spec
+    from cfa_tool.pipeline.inputs import continuous_only, load_spec, without_exploratory_blocks
 
-    spec = continuous_only(load_spec(spec), "power-simulation")
+    spec = without_exploratory_blocks(continuous_only(load_spec(spec), "power-simulation"), "power-simulation",
+                                      "its power would be of the block's unrotated loadings, which no report shows")
     replications = check.replications(replications, minimum=2)
     seed = check.seed(seed)
     alpha = check.probability("alpha (the significance level)", alpha)

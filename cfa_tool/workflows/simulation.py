@@ -310,9 +310,10 @@ def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing
     categories (and need ``categories``); without such a statement ``categories`` cuts every item.
     ``population``: an earlier fit of the same model (result, JSON dict or JSON file) whose estimates are
     the population values."""
-    from cfa_tool.pipeline.inputs import load_spec
+    from cfa_tool.pipeline.inputs import load_spec, without_exploratory_blocks
 
-    spec = load_spec(spec)
+    spec = without_exploratory_blocks(load_spec(spec), "simulate", "a population needs every loading, and a block's "
+                                      "loadings are known only up to its rotation")
     n = check.whole_number("the number of rows to simulate", n, 1)
     seed = check.seed(seed)
     missing = check.real_number("the share of missing answers", missing, 0.0, 1.0, open_high=True)
