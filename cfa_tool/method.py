@@ -175,3 +175,35 @@ class FitMethod:
         return {"estimator": self.estimator.value, "test": self.test.value, "information": self.information.value,
                 "missing": self.missing.value, "weighting": self.weighting.value if self.weighting else None,
                 "items": self.items.value, "thresholds_as_parameters": self.thresholds}
+
+
+class DecisionRule(Choice):
+    """How each step of an invariance ladder after the configural one is judged; ``phrase`` (also
+    ``description``) is how the report states the rule."""
+
+    DIFFERENCE_TEST = ("difference-test", "difference test",
+                       "the chi-square difference test against the step before (p >= alpha)")
+    FIT_CHANGE = ("fit-change", "change in fit",
+                  "the change in fit against the step before: CFI falls by no more than .010 (Cheung & Rensvold 2002), "
+                  "RMSEA rises by less than .015 and SRMR by less than .030 at the loadings step and .010 after it "
+                  "(Chen 2007)")
+    BOTH = ("both", "both", "both the chi-square difference test (p >= alpha) and the change-in-fit guides (Cheung & "
+                            "Rensvold 2002; Chen 2007)")
+
+    @property
+    def description(self) -> str:
+        return self.phrase
+
+
+class ReferenceMean(Choice):
+    """Alignment: what the reference group's factor means are; ``value`` the word users give, ``phrase`` what
+    the report says."""
+
+    ZERO = ("zero", "zero", "the reference group's factor means are 0 and its variances 1 (the authors' fixed alignment)")
+    ESTIMATED = ("estimated", "estimated", "the reference group's factor means are estimated too, its variances are 1 "
+                                           "(the authors' free alignment, identified by non-invariant loadings)")
+
+
+#: alignment: level of the tests that flag non-invariant parameters, and Monte Carlo trials of the aligned means
+ALIGNMENT_FLAG_LEVEL = 0.01
+ALIGNMENT_TRIALS = 20

@@ -10,7 +10,8 @@ from cfa_tool.commands.common import add_report_options, check_files, emit_repor
 
 
 def add_parser(sub) -> None:
-    from cfa_tool.workflows.alignment import DEFAULT_FLAG_LEVEL, DEFAULT_TRIALS, ReferenceMean
+    from cfa_tool.method import ALIGNMENT_FLAG_LEVEL as DEFAULT_FLAG_LEVEL, ALIGNMENT_TRIALS as DEFAULT_TRIALS, \
+        ReferenceMean
 
     p = sub.add_parser("align", help="factor means and variances across many groups by alignment (approximate "
                                      "invariance), with the non-invariant loadings and intercepts")

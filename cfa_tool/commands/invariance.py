@@ -10,7 +10,7 @@ from cfa_tool.commands.common import add_report_options, check_output, emit, inp
 
 
 def add_parser(sub) -> None:
-    from cfa_tool.workflows.invariance import DecisionRule
+    from cfa_tool.method import DecisionRule
 
     inv = sub.add_parser("invariance", help="test configural, metric, scalar and strict invariance across groups")
     O.add_model_and_data(inv)

@@ -56,7 +56,7 @@ def caution_lines(result) -> list[str]:
 
 
 def means_table(result, k: int) -> ReportTable:
-    from cfa_tool.workflows.alignment import ReferenceMean
+    from cfa_tool.method import ReferenceMean
 
     factor = result.factors[k]
     shares = dict(result.group_shares())

@@ -50,7 +50,7 @@ import pandas as pd
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
 from cfa_tool.language.spec import ScaleSetting, Spec
-from cfa_tool.method import Choice
+from cfa_tool.method import ALIGNMENT_FLAG_LEVEL, ALIGNMENT_TRIALS, ReferenceMean
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 
@@ -63,19 +63,11 @@ CAUTION_SHARE = 0.25
 #: a rule of thumb, recalled)
 TRUSTED_CORRELATION = 0.98
 #: level of the pairwise tests that flag non-invariant parameters (the level of the authors' procedure, recalled)
-DEFAULT_FLAG_LEVEL = 0.01
-DEFAULT_TRIALS = 20
+DEFAULT_FLAG_LEVEL = ALIGNMENT_FLAG_LEVEL
+DEFAULT_TRIALS = ALIGNMENT_TRIALS
 #: a Hessian of the loss whose smallest eigenvalue is below this share of its largest: the group means and
 #: variances are barely determined by the loss (its minimum is flat in some direction)
 FLAT_MINIMUM = 1e-7
-
-
-class ReferenceMean(Choice):
-    """What the reference group's factor means are: ``value`` the word users give, ``phrase`` what the report says."""
-
-    ZERO = ("zero", "zero", "the reference group's factor means are 0 and its variances 1 (the authors' fixed alignment)")
-    ESTIMATED = ("estimated", "estimated", "the reference group's factor means are estimated too, its variances are 1 "
-                                           "(the authors' free alignment, identified by non-invariant loadings)")
 
 
 # ---------------------------------------------------------------------------------------------------

@@ -11,7 +11,6 @@ practice, not tests.
 
 from __future__ import annotations
 
-import enum
 from dataclasses import dataclass, replace
 from pathlib import Path
 
@@ -29,6 +28,7 @@ from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.workflows.nesting import DifferenceTest, difference_test
 from cfa_tool.views import Presentable
+from cfa_tool.method import DecisionRule  # (declared with the other choices; imported from here too)
 
 LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
     # level, classes held equal, parameter kinds the step adds
@@ -51,23 +51,6 @@ RMSEA_GUIDE = 0.015  # Chen (2007)
 #: Chen (2007): an increase in SRMR of .030 or more at the loadings step, .010 or more at the steps after it
 SRMR_GUIDE = {"metric": 0.030}
 SRMR_GUIDE_LATER = 0.010
-
-
-class DecisionRule(enum.Enum):
-    """How each step after the configural one is judged; ``value`` is the word users give."""
-
-    def __new__(cls, word: str, description: str):
-        member = object.__new__(cls)
-        member._value_ = word
-        member.description = description
-        return member
-
-    DIFFERENCE_TEST = ("difference-test", "the chi-square difference test against the step before (p >= alpha)")
-    FIT_CHANGE = ("fit-change", "the change in fit against the step before: CFI falls by no more than .010 (Cheung & "
-                                "Rensvold 2002), RMSEA rises by less than .015 and SRMR by less than .030 at the "
-                                "loadings step and .010 after it (Chen 2007)")
-    BOTH = ("both", "both the chi-square difference test (p >= alpha) and the change-in-fit guides (Cheung & Rensvold "
-                    "2002; Chen 2007)")
 
 
 #: why the partial-invariance search stopped at a step
