@@ -21,6 +21,7 @@ from cfa_tool.reporting.picture import DEFAULT_DPI, page_fit, png_converter, svg
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
 from cfa_tool.reporting.text_formats import all_tables
 
+FAINT_GREY = RGBColor(0x99, 0x99, 0x99)
 PROBLEM_RED = RGBColor(0xB3, 0x26, 0x1E)
 FONT = "Times New Roman"
 NO_PICTURE = ("The path diagram is not included: making a picture for Word needs the rsvg-convert program "
@@ -61,12 +62,15 @@ def _add_table(document, table: ReportTable, number: int) -> None:
     grid = document.add_table(rows=len(table.rows) + 1, cols=len(table.columns))
     grid.alignment = WD_TABLE_ALIGNMENT.LEFT
     rows = [table.columns] + list(table.rows)
+    faint = set(table.faint)
     for r, values in enumerate(rows):
         for c, value in enumerate(values):
             cell = grid.cell(r, c)
             paragraph = cell.paragraphs[0]
             run = paragraph.add_run(str(value))
             run.font.size = Pt(10)
+            if r > 0 and (r - 1, c) in faint:  # small loadings: grey, as the note says
+                run.font.color.rgb = FAINT_GREY
             if r > 0 and (r - 1) in table.flagged:
                 run.bold = True
                 run.font.color.rgb = PROBLEM_RED

@@ -43,7 +43,9 @@ def markdown_table(table: ReportTable) -> str:
     lines = [f"**{markdown_text(table.title)}**", "",
              "| " + " | ".join(cell(c) or " " for c in table.columns) + " |",
              "| " + " | ".join("---:" if a == "r" else "---" for a in table.align) + " |"]
-    lines += ["| " + " | ".join(cell(v) for v in row) + " |" for row in table.rows]
+    faint = set(table.faint)  # shown in italics, Markdown's nearest to faint (the note says faintly)
+    lines += ["| " + " | ".join(f"*{cell(v)}*" if (k, j) in faint and v else cell(v) for j, v in enumerate(row)) + " |"
+              for k, row in enumerate(table.rows)]
     if table.note:
         lines += ["", f"*{markdown_text(table.note)}*"]
     return "\n".join(lines) + "\n"
