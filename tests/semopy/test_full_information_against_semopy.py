@@ -7,7 +7,7 @@ import pytest
 
 import cfa_tool
 from tests.conftest import THREE_FACTORS
-from tests.test_missing_data import ITEMS, hs_holes  # noqa: F401 (a fixture)
+from tests.data.test_missing_data import ITEMS, hs_holes  # noqa: F401 (a fixture)
 
 semopy = pytest.importorskip("semopy", reason="the comparisons with semopy need semopy (pip install '.[test]')")
 

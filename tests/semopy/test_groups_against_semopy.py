@@ -5,7 +5,7 @@ from __future__ import annotations
 import pytest
 
 from tests.semopy.helpers import _compare, _semopy_lookup
-from tests.test_groups_and_invariance import hs_ladder  # noqa: F401 (a fixture)
+from tests.workflows.test_groups_and_invariance import hs_ladder  # noqa: F401 (a fixture)
 
 semopy = pytest.importorskip("semopy", reason="the comparisons with semopy need semopy (pip install '.[test]')")
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 import pytest
 
 from tests.semopy.helpers import _ours_lookup, _semopy_fit
-from tests.test_robust import hs_robust  # noqa: F401 (a fixture)
+from tests.inference.test_robust import hs_robust  # noqa: F401 (a fixture)
 
 semopy = pytest.importorskip("semopy", reason="the comparisons with semopy need semopy (pip install '.[test]')")
 

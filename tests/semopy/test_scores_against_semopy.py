@@ -19,7 +19,7 @@ from cfa_tool.scoring.linear import score_rows
 from cfa_tool.scoring.methods import ScoreMethod
 from cfa_tool.scoring.model import score_inputs
 from tests.conftest import THREE_FACTORS, single_group
-from tests.test_scores_command import FACTORS, HS_FILE, _run, model_file  # noqa: F401 (a fixture)
+from tests.commands.test_scores_command import FACTORS, HS_FILE, _run, model_file  # noqa: F401 (a fixture)
 
 semopy = pytest.importorskip("semopy", reason="the comparisons with semopy need semopy (pip install '.[test]')")
 

@@ -14,7 +14,7 @@ from cfa_tool.data.em import em_saturated
 from cfa_tool.data.patterns import pattern_data
 from cfa_tool.method import FitTest, MissingData
 from tests.conftest import THREE_FACTORS
-from tests.test_cli import DATA, MODEL, run
+from tests.commands.test_cli import DATA, MODEL, run
 
 ITEMS = [f"x{i}" for i in range(1, 10)]
 
@@ -133,7 +133,7 @@ def test_satorra_bentler_is_refused_with_fiml(hs_holes):
 
 def test_yuan_bentler_with_complete_rows_gives_the_sandwich_standard_errors(hs_data):
     # With no missing answers the row scores give Browne's (1984) sandwich exactly, so the robust
-    # standard errors equal the Satorra-Bentler ones (which match semopy's; tests/test_robust.py).
+    # standard errors equal the Satorra-Bentler ones (which match semopy's; tests/inference/test_robust.py).
     sb = cfa_tool.fit(THREE_FACTORS, hs_data, test="satorra-bentler")
     yb = cfa_tool.fit(THREE_FACTORS, hs_data, test="yuan-bentler", missing="full-information")
     se = {(r.kind, r.variables): r.se for r in sb.estimates if r.free}

@@ -7,7 +7,7 @@ changes no implied moment (Bollen 1989, ch. 7; Little, Slegers & Card 2006), so 
 the same minimum.  CI fits a few cases; the long run, before a release or after touching the
 optimiser or the start values:
 
-    CFA_CONVERGENCE_CASES=60 python -m pytest tests/test_convergence.py -s
+    CFA_CONVERGENCE_CASES=60 python -m pytest tests/estimation/test_convergence.py -s
 
 (about half an hour on 2 cores) fits cases drawn at random from the ranges of the corpus and prints
 how many converged.

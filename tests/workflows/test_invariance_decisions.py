@@ -13,7 +13,7 @@ import pytest
 
 from cfa_tool.errors import OptionError
 from cfa_tool.workflows.invariance import DecisionRule, invariance
-from tests.test_cli import run
+from tests.commands.test_cli import run
 
 # population: two factors of three items, standardized loadings .8/.7/.6, factor correlation .3
 L = np.zeros((6, 2))

@@ -20,7 +20,7 @@ from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.errors import DataError, OptionError
 from cfa_tool.method import MissingData
 from cfa_tool.reporting import tables as T
-from tests.test_ordinal import scipy_polychoric
+from tests.pipeline.test_ordinal import scipy_polychoric
 
 LOADINGS = np.array([0.8, 0.7, 0.6, 0.75, 0.7, 0.65])  # population values of the simulations below
 CUTS = np.array([-1.0, 0.0, 0.9])

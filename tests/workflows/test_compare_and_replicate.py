@@ -12,7 +12,7 @@ from cfa_tool.errors import OptionError
 from cfa_tool.workflows.compare import compare
 from cfa_tool.workflows.replication import replicate, split_half
 from tests.conftest import ONE_FACTOR, THREE_FACTORS
-from tests.test_cli import DATA, MODEL, run
+from tests.commands.test_cli import DATA, MODEL, run
 
 
 def test_one_versus_three_factors(hs_data):

@@ -12,7 +12,7 @@ import cfa_tool
 from cfa_tool.errors import OptionError
 from cfa_tool.workflows.montecarlo import monte_carlo_power
 from cfa_tool.workflows.simulation import population_from_spec, simulate
-from tests.test_cli import run
+from tests.commands.test_cli import run
 
 THREE = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
 

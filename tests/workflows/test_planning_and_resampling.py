@@ -277,7 +277,7 @@ def test_cluster_gives_the_same_result_as_local_processes():
 
 
 def test_cli_planning_commands(tmp_path):
-    from tests.test_cli import run
+    from tests.commands.test_cli import run
 
     model = tmp_path / "pop.cfa"
     model.write_text(POPULATION)

@@ -13,7 +13,7 @@ import cfa_tool
 from cfa_tool.errors import OptionError
 from cfa_tool.method import FitTest, MissingData
 from tests.conftest import THREE_FACTORS, holzinger_swineford
-from tests.test_cli import DATA, MODEL, run
+from tests.commands.test_cli import DATA, MODEL, run
 
 
 def _hs():

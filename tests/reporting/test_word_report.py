@@ -15,7 +15,7 @@ from cfa_tool.reporting.diagram import path_diagram
 from cfa_tool.reporting.docx_report import docx_report
 from cfa_tool.reporting.picture import svg_to_png
 from cfa_tool.reporting.text_formats import all_tables
-from tests.test_cli import run
+from tests.commands.test_cli import run
 
 HEYWOOD = ("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
            "covary x7, x8\ncovary x8, x9\n")

@@ -11,7 +11,7 @@ import cfa_tool
 from cfa_tool.errors import CfaError
 from cfa_tool.output_files import write_file
 from tests.conftest import THREE_FACTORS
-from tests.test_cli import DATA, MODEL, run
+from tests.commands.test_cli import DATA, MODEL, run
 
 PACKAGE = Path(cfa_tool.__file__).parent
 FORBIDDEN_CALLS = {"eval", "exec", "compile", "__import__"}

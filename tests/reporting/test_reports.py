@@ -21,7 +21,7 @@ from cfa_tool.reporting.html_report import html_report
 from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.text_formats import latex_tables, markdown_report
 from tests.conftest import simulate_cfa
-from tests.test_cli import DATA, MODEL, run
+from tests.commands.test_cli import DATA, MODEL, run
 
 HOSTILE = "<script>alert(1)</script>"
 HOSTILE_IMG = "<img src=x onerror=alert(1)>"

@@ -121,7 +121,7 @@ def test_filtered_rows_stay_in_place_with_empty_cells(tmp_path, model_file, caps
 
 
 def test_an_inadmissible_solution_writes_no_scores_and_exits_3(tmp_path, capsys):
-    # the Heywood case of tests/test_admissibility.py: a negative residual variance of x9
+    # the Heywood case of tests/assessment/test_admissibility.py: a negative residual variance of x9
     model = tmp_path / "heywood.cfa"
     model.write_text("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
                      "covary x7, x8\ncovary x8, x9\n")

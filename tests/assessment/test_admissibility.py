@@ -20,7 +20,7 @@ from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.terminal import render_text
 from cfa_tool.reporting.text_formats import csv_table, markdown_report
 from cfa_tool.reporting import tables as T
-from tests.test_cli import run
+from tests.commands.test_cli import run
 
 HEYWOOD = """factor visual: x1, x2, x3
 factor textual: x4, x5, x6

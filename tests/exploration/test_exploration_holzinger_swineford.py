@@ -2,7 +2,7 @@
 
 * One factor: exploratory maximum likelihood is the one-factor confirmatory model, chi-square
   312.264 on 27 df (recalled from memory of widely published analyses; also asserted in
-  tests/test_holzinger_swineford_published.py), with the same log-likelihood, BIC, RMSEA and
+  tests/pipeline/test_holzinger_swineford_published.py), with the same log-likelihood, BIC, RMSEA and
   standardized loadings as ``cfa_tool.fit``.
 * Three factors: an m-factor exploratory solution equals the confirmatory model in which m - 1
   items per factor ("anchors") have zero loadings on the other factors and the factor variances

@@ -26,7 +26,7 @@ def _env() -> dict:
 
     env = dict(os.environ)
     env.pop("CFA_TOOL_DEBUG", None)
-    env["PYTHONPATH"] = str(Path(__file__).resolve().parents[1]) + os.pathsep + env.get("PYTHONPATH", "")
+    env["PYTHONPATH"] = str(Path(__file__).resolve().parents[2]) + os.pathsep + env.get("PYTHONPATH", "")
     return env
 
 

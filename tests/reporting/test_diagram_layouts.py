@@ -22,7 +22,7 @@ import cfa_tool
 from cfa_tool.reporting.diagram import diagram_file, path_diagram
 
 from tests.conftest import THREE_FACTORS, simulate_cfa
-from tests.test_cli import run
+from tests.commands.test_cli import run
 
 SVG = "{http://www.w3.org/2000/svg}"
 CHAR_EM = 0.62
@@ -91,7 +91,7 @@ def shapes(hs_data):
                                         "scale latent by variance\n", data)
     out["method factor, correlated"] = cfa_tool.fit("factor trust: v1..v5\nfactor loyalty: v6..v10\n"
                                                     "factor wording: v2, v4, v7, v9\nmethod wording\nscale latent by variance\n", data)
-    from tests.test_exploratory_blocks import GEOMIN
+    from tests.exploration.test_exploratory_blocks import GEOMIN
 
     out["exploratory block"] = cfa_tool.fit(GEOMIN, hs_data)
     # 60 items in six correlated factors, with two residual covariances
@@ -213,7 +213,7 @@ def test_in_a_browser_no_label_overlaps_and_the_estimate_is_on_the_safe_side(tmp
     halo) must not overlap, must stay in the picture, and must be no wider than the test's estimate."""
     import json
 
-    from tests.test_reports import _chromium
+    from tests.reporting.test_reports import _chromium
 
     pictures = [diagram_file(shapes[shape]) for shape in LAYOUTS]
     page = tmp_path / "layouts.html"
