@@ -23,6 +23,7 @@ def add_parser(sub) -> None:
                      help="how each step is judged: the chi-square difference test (default), the change in CFI, RMSEA "
                           "and SRMR against common-practice guides, or both")
     O.add_ordinal_options(inv)
+    O.add_incomplete_rows_option(inv)
     O.add_design_options(inv)
     add_report_options(inv)
 
@@ -34,5 +35,5 @@ def run(args: argparse.Namespace) -> int:
     result = invariance(Path(args.model), args.data, args.group, reference_group=args.reference_group,
                         partial=args.partial, alpha=args.alpha, decide_by=args.decide_by, sheet=args.sheet,
                         missing_codes=args.missing_codes, keep=args.keep, ordinal=O.ordinal_arg(args.ordinal),
-                        ordinal_estimator=args.ordinal_estimator, **O.design_args(args))
+                        ordinal_estimator=args.ordinal_estimator, missing=args.missing, **O.design_args(args))
     return emit(args, result)

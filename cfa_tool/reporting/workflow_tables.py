@@ -210,8 +210,10 @@ def invariance_report(result) -> Report:
             steps.append([label, "its own fit", "", "", "", "", verdict])
             step_values.append([label, None, None, None, None, None, None, verdict])
     tables = [
-        _table("levels", "Fit of each level", [("Level", "l"), ("Chi-square (df)", "r"), ("p", "r"), ("CFI", "r"),
-                                                ("RMSEA", "r"), ("SRMR", "r"), ("Admissible", "l")], levels,
+        _table("levels", "Fit of each level", [("Level", "l"),
+                                                ("Scaled chi-square (df)" if adjusted else "Chi-square (df)", "r"),
+                                                ("p", "r"), ("CFI", "r"), ("RMSEA", "r"), ("SRMR", "r"),
+                                                ("Admissible", "l")], levels,
                flagged=tuple(flagged),
                values=(["Level", "Chi-square", "df", "p", "CFI", "RMSEA", "SRMR", "Admissible"], level_values)),
         _table("steps", "Each step against the one before",
@@ -222,7 +224,11 @@ def invariance_report(result) -> Report:
                values=(["Level", "Chi-square difference", "df difference", "p", "\u0394CFI", "\u0394RMSEA", "\u0394SRMR",
                         "Holds"], step_values)),
     ]
-    notes = ([ADJUSTED_NOTE] if adjusted else []) + [CONFIGURAL_NOTE]
+    ordinal = result.steps[0].result.method.ordinal
+    tests = sorted({step.result.robust.test.label for step in result.steps if step.result.robust is not None})
+    scaled_note = (f"Chi-square, CFI and RMSEA of each level are the scaled statistic and robust indices "
+                   f"({', '.join(tests)}), and each difference test is the scaled difference of those statistics.")
+    notes = ([ADJUSTED_NOTE if ordinal else scaled_note] if adjusted else []) + [CONFIGURAL_NOTE]
     if result.freed:
         many = len(result.groups) > 2
         rows = [[f.level, f"{f.kind.replace('_', ' ')} {', '.join(f.variables)}", *([str(f.group)] if many else []),
@@ -256,8 +262,11 @@ def invariance_report(result) -> Report:
     inadmissible = any(s.result.converged and not s.result.admissible for s in result.steps)
     notice = None if not result.warnings else ProblemNotice(
         SOME_NOT_ADMISSIBLE if inadmissible else T.CAUTION, tuple(result.warnings), inadmissible)
+    first = result.steps[0].result
     lines = (f"Reference group (factor means fixed at zero): {result.groups[0]}",
-             *_design_lines(result.steps[0].result),
+             f"{first.n_obs} rows analysed ({', '.join(f'{g.label}: {g.data.n_obs}' for g in first.groups)}); "
+             f"estimation: {first.estimator}",
+             *_design_lines(first),
              f"Each step after the configural one is judged by "
              f"{result.rule.description.replace('alpha', unit(result.alpha, 2))}.")
     return Report(ResultKind.INVARIANCE, f"Measurement invariance across {result.group_column} ({', '.join(result.groups)})",

@@ -17,7 +17,8 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (check_ordinal_options, design_test, make_options, moments_for, ordinal_estimator_option,
+from cfa_tool.pipeline.inputs import (check_ordinal_options, choose_missing_handling, design_test, make_options,
+                                      moments_for, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs, with_design)
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
@@ -242,7 +243,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise)
         ladder = OrdinalLadder(ordinal_estimator)
     else:
-        groups, notes = moments_for(spec, frame, source, group, reference_group, design=design)
+        # rows with gaps are kept (full-information ML), as 'fit' keeps them, unless listwise is asked for
+        fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
+        groups, notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design=design)
+        notes = list(missing_notes) + list(notes)
         ladder = NormalLadder(design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
     labels = tuple(label for label, _ in groups)
 
