@@ -45,6 +45,8 @@ class ProblemKind(enum.Enum):
     STANDARDIZED_LOADING_ABOVE_ONE = ("standardized loading above 1", "standardized above 1", False)
     ON_BOUND = ("estimate on a bound", "held at a bound", True)
     EMPIRICALLY_UNDERIDENTIFIED = ("empirically under-identified", "barely determined by the data", True)
+    # not of the solution but of its standard errors: a sampling design with too few clusters
+    FEW_CLUSTERS = ("too few clusters", "too few clusters", False)
 
 
 @dataclass(frozen=True)
@@ -81,6 +83,7 @@ class Problem:
             K.STANDARDIZED_LOADING_ABOVE_ONE: f"a standardized loading of {names[-1] if names else ''} above 1 ({v})",
             K.ON_BOUND: f"{', '.join(self.parameters)} held at a bound",
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
+            K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
         }[self.kind]
         return text + (f" in group {self.group}" if self.group is not None else "")
 

@@ -34,12 +34,6 @@ class DesignColumns:
         return tuple((what, name) for what, name in (("weights", self.weights), ("cluster", self.cluster),
                                                       ("strata", self.strata)) if name is not None)
 
-    def label(self) -> str:
-        """The design in the status line: 'design: sampling weights (w), clusters (school)'."""
-        parts = [f"{self.kind.label} ({self.weights})" if self.weights else None,
-                 f"clusters ({self.cluster})" if self.cluster else None, f"strata ({self.strata})" if self.strata else None]
-        return "design: " + ", ".join(p for p in parts if p)
-
     @property
     def robust(self) -> bool:
         """Whether the design calls for sandwich standard errors and a scaled test (everything but frequency
@@ -104,6 +98,21 @@ class SampleDesign:
                                                                                           "contributions")
                      + " and the chi-square is scaled accordingly.")
         return text
+
+    def status(self) -> str:
+        """The design in the status line: 'design: sampling weights (w; sum 912, Kish's effective N 783.2),
+        clusters (school; 60)'."""
+        c = self.columns
+        parts = []
+        if c.weights is not None:
+            extra = (f"; sum {self.sum_of_weights:.6g}" + (f", Kish's effective N {self.effective_n:.1f}"
+                                                           if c.kind is WeightKind.SAMPLING else ""))
+            parts.append(f"{c.kind.label} ({c.weights}{extra})")
+        if c.cluster is not None:
+            parts.append(f"clusters ({c.cluster}; {self.clusters})")
+        if c.strata is not None:
+            parts.append(f"strata ({c.strata}; {self.strata})")
+        return "design: " + ", ".join(parts)
 
     def caution(self) -> str | None:
         if self.clusters is not None and self.clusters < SMALL_NUMBER_OF_CLUSTERS:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+import re
 from dataclasses import replace
 from functools import lru_cache
 from pathlib import Path
@@ -344,12 +345,30 @@ def design_test(fit_options, design: DesignColumns):
 def with_design(result: FitResult, design) -> FitResult:
     """The result stating the design it was fitted under (status line, JSON, methods paragraph, cautions)."""
     caution = design.caution()
+    problems = result.problems
+    if caution:  # first in every view: the standard errors and tests themselves are in doubt
+        from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+        free = len(result.parameter_labels)
+        fewer = design.clusters <= free
+        explanation = (f"Only {design.clusters} clusters in '{design.columns.cluster}'"
+                       + (f", no more than the {free} free parameters: the cluster-robust covariance of the estimates "
+                          f"is singular, so its standard errors and scaled test mean little." if fewer else
+                          ": cluster-robust standard errors and tests are too optimistic with fewer than about 30-50 "
+                          "clusters (common practice)."))
+        problems = problems + (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), explanation,
+                                       "read the p-values with caution, or fit without --cluster and say that rows are "
+                                       "nested in clusters."),)
+        caution = None
     fit = result.fit
     if fit is not None and design.columns.weights is not None and design.columns.kind is WeightKind.SAMPLING:
         # a weighted log-likelihood is a pseudo-likelihood: information criteria built on it would mislead
         fit = replace(fit, log_likelihood=None, aic=None, bic=None, sabic=None)
-    return replace(result, design=design, fit=fit, estimator=f"{result.estimator}; {design.columns.label()}",
-                   warnings=((caution,) if caution else ()) + result.warnings)
+    estimator = result.estimator
+    if design.columns.cluster is not None:  # the sandwich's middle is summed by cluster
+        estimator = re.sub(r"robust (\(Huber-White\) )?standard errors", "cluster-robust standard errors", estimator)
+    return replace(result, design=design, fit=fit, estimator=f"{estimator}; {design.status()}",
+                   warnings=((caution,) if caution else ()) + result.warnings, problems=problems)
 
 
 def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, ...],
