@@ -11,6 +11,8 @@ that from the result's model description, never from a generic template.
 
 from __future__ import annotations
 
+import math
+
 from cfa_tool.method import Information, FitTest, Items, MissingData
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.language.spec import equality_words
@@ -202,8 +204,9 @@ def _sample_phrase(result) -> str:
     if full_information and result.missing_data is not None:
         coverage = result.missing_data.get("coverage", {})
         low = min(coverage.values()) if coverage else 1.0
-        text += (f"; every answer of every row was used, including rows with missing answers (item coverage "
-                 f"{unit(low, 2)} or higher)")
+        floor = math.floor(1000 * low) / 10  # never rounded up: 99.96% is not 'every row'
+        text += (f"; every answer of every row was used, including rows with missing answers (each item answered in "
+                 f"at least {floor:g}% of the rows)")
     pairs = data.pair_range
     if pairs is not None and pairs[0] < result.n_obs:
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
@@ -277,7 +280,14 @@ def methods_paragraph(result) -> str:
     blocks = getattr(result, "exploratory", ())
     if loadings:
         which = "on the confirmatory factors " if blocks else ""
-        parts.append(f"Standardized loadings {which}ranged from {unit(min(loadings), 2)} to {unit(max(loadings), 2)}.")
+        negative = sum(v < 0 for v in loadings)
+        if negative:  # reverse-keyed items: a range from -.76 to .81 would read as if -.76 were the weakest
+            sizes = [abs(v) for v in loadings]
+            parts.append(f"Standardized loadings {which}ranged from {unit(min(sizes), 2)} to {unit(max(sizes), 2)} in "
+                         f"absolute value ({negative} negative).")
+        else:
+            parts.append(f"Standardized loadings {which}ranged from {unit(min(loadings), 2)} to "
+                         f"{unit(max(loadings), 2)}.")
     corr = [r.standardized for r in result.estimates if r.kind == "factor_covariance"]
     if corr and not result.multigroup:
         which = " of the confirmatory factors" if blocks else ""

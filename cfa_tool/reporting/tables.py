@@ -665,6 +665,12 @@ def normality_lines(result) -> list[str]:
         if (n.skewness_p_value < 0.05 or n.kurtosis_p_value < 0.05) and result.robust is None:
             line += " The data depart from normality: consider the scaled test (--robust)."
         lines.append(line)
+    if not lines and result.method.full_information and not result.method.ordinal:
+        # said, not silently left out: both need every row complete
+        lines.append("Mardia's tests of multivariate normality and the table of rows that contribute most to the "
+                     "chi-square need complete rows, so with full-information ML they are not computed "
+                     "(--incomplete-rows listwise gives them for the complete rows; --robust guards the test and the "
+                     "standard errors against non-normal answers either way).")
     return lines
 
 

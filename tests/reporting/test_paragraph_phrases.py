@@ -1,0 +1,41 @@
+"""Phrases of the methods paragraph and the report that a new user found misleading: item coverage rounded up
+past 100% ('coverage 1.00 or higher'), a loading range from a reverse-keyed item's negative loading, and
+Mardia's tests left out of a full-information fit without a word.  Check values are computed here with numpy
+from the data and the result's own estimates."""
+
+from __future__ import annotations
+
+import numpy as np
+
+import cfa_tool
+from cfa_tool.reporting.paragraph import methods_paragraph
+from cfa_tool.reporting.terminal import render_text
+from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+
+def _hs():
+    return holzinger_swineford()[[f"x{i}" for i in range(1, 10)]].copy()
+
+
+def test_coverage_is_never_rounded_up():
+    data = _hs()
+    data.iloc[0, 1] = np.nan  # x2: 300 of 301 rows answered, 99.67%
+    text = methods_paragraph(cfa_tool.fit(THREE_FACTORS, data))
+    assert "each item answered in at least 99.6% of the rows" in text and "1.00" not in text
+
+
+def test_a_negative_loading_gives_the_range_in_absolute_value():
+    data = _hs()
+    data["x2"] = -data["x2"]  # a reverse-keyed item: its standardized loading turns negative
+    result = cfa_tool.fit(THREE_FACTORS, data)
+    sizes = sorted(abs(r.standardized) for r in result.estimates if r.kind == "loading")
+    text = methods_paragraph(result)
+    low, high = (f"{v:.2f}".lstrip("0") for v in (sizes[0], sizes[-1]))
+    assert f"ranged from {low} to {high} in absolute value (1 negative)" in text
+
+
+def test_full_information_says_why_mardias_tests_are_missing():
+    data = _hs()
+    data.iloc[::10, 4] = np.nan
+    text = render_text(cfa_tool.fit(THREE_FACTORS, data))
+    assert "Mardia's tests of multivariate normality and the table of rows that contribute most" in " ".join(text.split())
