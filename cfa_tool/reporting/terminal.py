@@ -43,18 +43,52 @@ def _table(title: str, columns: list[tuple[str, str]]) -> Table:
 
 def rich_table(report: ReportTable) -> Group:
     """The table with its title above and its note below, both wrapped at the terminal's width (as part of
-    the table they would wrap at the table's width, a narrow column of words under a narrow table)."""
-    table = _table("", [(c, "left" if a == "l" else "right") for c, a in zip(report.columns, report.align)])
-    for column in table.columns:
-        column.overflow = "fold"  # a narrow terminal wraps a long word; it never cuts one short
-    faint = set(report.faint)
-    for k, row in enumerate(report.rows):
-        cells = [Text(printable(v), style="dim") if (k, j) in faint else v for j, v in enumerate(row)]
-        table.add_row(*cells, style="bold red" if k in report.flagged else None)
-    parts = [Text(printable(report.title), style="bold"), table]  # (Text is not escaped by SafeConsole.render_str)
+    the table they would wrap at the table's width, a narrow column of words under a narrow table).  A table
+    wider than the terminal is shown in parts of whole columns, each with the first column again: a number is
+    never broken across lines (a residual '-.02' printed as '-.0' above '2' reads as another number)."""
+    parts = [Text(printable(report.title), style="bold"), _ColumnParts(report)]  # (Text is not escaped otherwise)
     if report.note and report.key not in ("fit",):
         parts += [Text(printable(report.note, keep_newlines=True), style="dim"), Text("")]
     return Group(*parts)
+
+
+class _ColumnParts:
+    """A report table laid out at the width the console offers when it is drawn."""
+
+    def __init__(self, report: ReportTable):
+        self.report = report
+
+    def __rich_console__(self, console, options):
+        report = self.report
+        widths = [max([len(c) for c in [report.columns[j], *(row[j] for row in report.rows)]] or [0]) + 3
+                  for j in range(len(report.columns))]
+        room = options.max_width
+        groups: list[list[int]] = []
+        for j in range(1, len(report.columns)):
+            if groups and widths[0] + sum(widths[i] for i in groups[-1]) + widths[j] <= room:
+                groups[-1].append(j)
+            else:
+                groups.append([j])
+        if len(groups) <= 1 or len(report.columns) <= 2 or sum(widths) <= room:
+            yield self._table(list(range(len(report.columns))))
+            return
+        for k, columns in enumerate(groups):
+            if k:
+                yield Text(f"({printable(report.title)}, continued)", style="dim")
+            yield self._table([0, *columns])
+
+    def _table(self, columns: list[int]) -> Table:
+        report = self.report
+        table = _table("", [(report.columns[j], "left" if report.align[j] == "l" else "right") for j in columns])
+        for column, j in zip(table.columns, columns):
+            # text may wrap in a narrow terminal (never cut short); numbers stay whole
+            column.overflow = "fold"
+            column.no_wrap = report.align[j] == "r"
+        faint = set(report.faint)
+        for k, row in enumerate(report.rows):
+            cells = [Text(printable(row[j]), style="dim") if (k, j) in faint else row[j] for j in columns]
+            table.add_row(*cells, style="bold red" if k in report.flagged else None)
+        return table
 
 
 def problem_panel(notice: T.ProblemNotice) -> Panel:

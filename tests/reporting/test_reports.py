@@ -296,3 +296,23 @@ def test_a_narrow_tables_title_and_note_wrap_at_the_terminal_width_not_the_table
     assert "A title longer than the two narrow columns of its table below it" in lines
     note_lines = [line for line in lines if line.startswith(("A note", "lines", "which"))]
     assert len(note_lines) <= 3 and max(len(line) for line in lines) <= 80
+
+
+def test_a_table_wider_than_the_terminal_is_shown_in_parts_and_no_number_is_broken():
+    # found in use: at 80 columns a 12-item residual matrix printed '-.02' as '-.0' above '2'
+    from cfa_tool.reporting.tables import ReportTable
+    from cfa_tool.reporting.terminal import SafeConsole, rich_table
+
+    labels = [f"{k} accurate_info_{k}" for k in range(1, 13)]
+    rows = tuple((label, *(f"{-0.01 * ((k + j) % 9):.2f}".replace("0.", ".") for j in range(12)))
+                 for k, label in enumerate(labels))
+    table = ReportTable("residuals", "Residual correlations", ("", *map(str, range(1, 13))), ("l",) + ("r",) * 12, rows)
+    console = SafeConsole(width=80, record=True, no_color=True, file=io.StringIO())
+    console.print(rich_table(table))
+    text = console.export_text()
+    assert max(len(line) for line in text.splitlines()) <= 80
+    assert "(Residual correlations, continued)" in text
+    for row in rows:  # every value appears whole on its row, in one part or another
+        line_cells = [line.split() for line in text.splitlines() if line.split()[:2] == row[0].split()]
+        shown = [cell for cells in line_cells for cell in cells[2:]]
+        assert shown == list(row[1:]), (row[0], shown)
