@@ -16,6 +16,7 @@ import pandas as pd
 
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.method import MissingData, WeightKind
+from cfa_tool.suggest import close_names
 
 SMALL_NUMBER_OF_CLUSTERS = 30  # below about 30-50 clusters cluster-robust errors are too small (common practice)
 
@@ -146,7 +147,9 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
         raise OptionError(f"the column '{printable(twice)}' is named for two parts of the design; each needs its own")
     for what, name in columns.names:
         if name not in frame.columns:
-            raise OptionError(f"{source}: there is no {what} column '{printable(name)}'")
+            near = close_names(name, frame.columns)
+            raise OptionError(f"{source}: there is no {what} column '{printable(name)}'"
+                              + (f"; did you mean '{printable(near[0])}'?" if near else ""))
         if name in model_variables:
             raise OptionError(f"'{printable(name)}' is an item in the model and cannot also be the {what} column")
         if name == group:

@@ -32,6 +32,8 @@ def unit(value, digits: int = 3) -> str:
 def p_value(value) -> str:
     if missing(value):
         return ""
+    if value > 0.999:  # APA style: a p-value of 1 is never exact
+        return "> .999"
     return "< .001" if value < 0.001 else unit(value, 3)
 
 

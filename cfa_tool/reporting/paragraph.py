@@ -27,7 +27,7 @@ def _count(n: int, noun: str, plural: str | None = None) -> str:
 
 
 def _p(p: float) -> str:
-    return "p < .001" if p < 0.001 else f"p = {unit(p)}"
+    return "p < .001" if p < 0.001 else "p > .999" if p > 0.999 else f"p = {unit(p)}"
 
 
 def _list(words: list[str]) -> str:

@@ -28,7 +28,7 @@ KIND_TITLES = {
     "residual_covariance": "Residual covariances (standardized: residual correlations)",
     "intercept": "Intercepts",
     "mean": "Factor means",
-    "threshold": "Thresholds of ordinal items (standardized: on the latent response's scale in this group)",
+    "threshold": "Thresholds of ordinal items (standardized: on the latent response's scale)",
 }
 
 
@@ -130,7 +130,7 @@ def row_problem(result, kind: str, variables: tuple[str, ...], group: str | None
 
 def p_phrase(p) -> str:
     text = p_value(p)
-    return text if text.startswith("<") else f"= {text}"
+    return text if text.startswith(("<", ">")) else f"= {text}"
 
 
 def fit_table(result) -> ReportTable:

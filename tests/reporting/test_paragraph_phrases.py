@@ -39,3 +39,11 @@ def test_full_information_says_why_mardias_tests_are_missing():
     data.iloc[::10, 4] = np.nan
     text = render_text(cfa_tool.fit(THREE_FACTORS, data))
     assert "Mardia's tests of multivariate normality and the table of rows that contribute most" in " ".join(text.split())
+
+
+def test_a_p_value_of_one_is_never_printed_as_exact():
+    # APA style (7th ed., 6.36, recalled from memory): p-values are not reported as 1; '> .999' instead
+    from cfa_tool.reporting.numbers import p_value
+    from cfa_tool.reporting.tables import p_phrase
+
+    assert p_value(1.0) == "> .999" and p_phrase(0.99995) == "> .999" and p_value(0.5) == ".500"
