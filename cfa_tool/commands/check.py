@@ -6,7 +6,7 @@ import argparse
 from pathlib import Path
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import check_output, inputs_of
+from cfa_tool.commands.common import add_report_options, check_output, emit, inputs_of
 
 
 def add_parser(sub) -> None:
@@ -15,14 +15,13 @@ def add_parser(sub) -> None:
     check.add_argument("--group-column", dest="group", metavar="COLUMN", help="column whose values name the groups")
     O.add_renamed(check, "--group", O.GROUP_NOW)
     O.add_data_options(check)
+    add_report_options(check)
 
 
 def run(args: argparse.Namespace) -> int:
-    from cfa_tool.errors import printable
     from cfa_tool.pipeline.inputs import check
 
     check_output(args, inputs_of(args))
     found = check(Path(args.model), args.data, group=args.group, sheet=args.sheet, missing_codes=args.missing_codes,
                   keep=args.keep)
-    print(printable(found.summary(), keep_newlines=True))
-    return 0
+    return emit(args, found)
