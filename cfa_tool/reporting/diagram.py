@@ -63,7 +63,7 @@ def _label(x: float, y: float, text: str, size: int = 11, anchor: str = "middle"
 BLOCK_LOADING_DRAWN = 0.30  # rotated loadings of exploratory blocks drawn from this size on (common practice)
 LEGEND = ("Standardized values. Ellipses: factors; rectangles: observed items; circles: residual terms (share of "
           "variance not explained); dashed arrows: loadings fixed to set a factor's scale; curved double arrows: "
-          "correlations.")
+          "correlations (listed above the drawing instead when it is drawn in rows of factors).")
 BLOCK_LEGEND = "Exploratory blocks: their rotated loadings of .30 or more in absolute value are drawn."
 
 METHOD_LEGEND = "Grey ellipses: method factors (a way of answering, not a trait)."
@@ -78,7 +78,8 @@ def legend_lines(result) -> list[str]:
     """What the shapes, lines and colours of ``result``'s diagram mean, in lines for a standalone file."""
     lines = ["Standardized values. Ellipses: factors; rectangles: observed items;",
              "circles: residual terms (share of variance not explained);",
-             "dashed arrows: loadings fixed to set a factor's scale; curved double arrows: correlations."]
+             "dashed arrows: loadings fixed to set a factor's scale; curved double arrows: correlations",
+             "(listed above the drawing instead when it is drawn in rows of factors)."]
     if _method_factors(result):
         lines.append(METHOD_LEGEND)
     if getattr(result, "exploratory", ()):

@@ -3,8 +3,10 @@
 from __future__ import annotations
 
 import io
+import os
 import shutil
 import struct
+import subprocess
 
 import docx
 import pytest
@@ -15,6 +17,7 @@ from cfa_tool.reporting.diagram import path_diagram
 from cfa_tool.reporting.docx_report import docx_report
 from cfa_tool.reporting.picture import svg_to_png
 from cfa_tool.reporting.text_formats import all_tables
+from cfa_tool.resources import resource_dir
 from tests.commands.test_cli import run
 
 HEYWOOD = ("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
@@ -93,3 +96,21 @@ def test_one_diagram_per_group_named_on_it(hs_data):
         assert len(document.inline_shapes) == 2
         assert "Path diagram of the fitted model, group Pasteur (standardized values)" in [p.text for p in
                                                                                            document.paragraphs]
+
+
+@pytest.mark.skipif(shutil.which("soffice") is None, reason="no office suite (soffice) to turn the Word file into PDF")
+def test_the_word_report_converts_to_pdf_with_its_figure(tmp_path):
+    # the page a reader prints: LibreOffice (an independent reader of .docx) lays the report out as PDF with the
+    # path diagram as a picture on a page
+    result = cfa_tool.fit(resource_dir("models") / "rider_three_factors.cfa", resource_dir("demo") / "rider_survey.csv")
+    source = tmp_path / "report.docx"
+    source.write_bytes(docx_report(result, 150))
+    proc = subprocess.run(["soffice", "--headless", "--convert-to", "pdf", "--outdir", str(tmp_path), str(source)],
+                          capture_output=True, text=True, timeout=180, env={**os.environ, "HOME": str(tmp_path)})
+    pdf = tmp_path / "report.pdf"
+    assert pdf.exists(), proc.stderr
+    content = pdf.read_bytes()
+    assert content.startswith(b"%PDF-") and b"/Image" in content
+    if shutil.which("pdfinfo"):
+        pages = subprocess.run(["pdfinfo", str(pdf)], capture_output=True, text=True).stdout
+        assert int(next(line.split()[-1] for line in pages.splitlines() if line.startswith("Pages:"))) >= 2
