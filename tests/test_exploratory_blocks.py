@@ -217,3 +217,35 @@ def test_workflows_that_would_show_the_unrotated_block_refuse_it(tmp_path, comma
     err = capsys.readouterr().err
     assert code == 2 and "not available for a model with an exploratory block" in err and "block.cfa:1:1:" in err
     assert not (tmp_path / "s.csv").exists()
+
+
+RIDER_ITEMS = ("on_time", "seat_available", "short_wait", "accurate_info", "easy_transfer", "clean", "temperature",
+               "room_to_stand")
+
+
+def test_ordinal_block_over_all_items_is_explores_polychoric_solution():
+    """A 2-factor block over all 8 ordinal items, fitted by unweighted least squares on the polychoric
+    correlations, is the least-squares (minimum residual; Harman & Jones 1966) exploratory solution of those
+    correlations: explore's own extraction, rotated by geomin here.  The latent responses have variance 1, so
+    the standardized loadings are the loadings themselves (not divided by sqrt(common variance + 1))."""
+    import pandas as pd
+
+    from cfa_tool.data.polychoric import ordinal_moments
+    from cfa_tool.exploration import ExtractionMethod, from_ordinal_moments
+    from tests.conftest import DATASETS
+
+    frame = pd.read_csv(DATASETS.parent.parent / "demo" / "rider_survey.csv").dropna(subset=list(RIDER_ITEMS))
+    text = f"exploratory factors f1, f2 from {', '.join(RIDER_ITEMS)} rotated by geomin\n"
+    fit = cfa_tool.fit(text, frame, ordinal="all", ordinal_estimator="unweighted")
+    block = fit.exploratory[0]
+    efa = extract(from_ordinal_moments(ordinal_moments(frame, list(RIDER_ITEMS), "rider", frozenset())), 2,
+                  ExtractionMethod.LEAST_SQUARES)
+    theirs = rotate(efa.loadings, RotationSpec(RotationMethod.GEOMIN))
+    P, Phi = theirs.pattern, theirs.factor_correlations
+    order = [int(np.argmax(np.abs(block.standardized.T @ P)[k])) for k in range(2)]  # same columns, same signs
+    P, Phi = P[:, order], Phi[np.ix_(order, order)]
+    signs = np.sign(np.sum(P * block.standardized, axis=0))
+    np.testing.assert_allclose(block.standardized, P * signs, atol=2e-3)
+    np.testing.assert_allclose(block.correlations, Phi * np.outer(signs, signs), atol=2e-3)
+    np.testing.assert_allclose(block.pattern, block.standardized)  # latent responses of variance 1
+    assert np.all(np.isfinite(block.standardized_se)) and np.all(block.standardized_se > 0)

@@ -5,7 +5,8 @@ A block's factors are fitted in the rotational identification of exploratory fac
 (factor variances 1, factors uncorrelated, the j-th factor's loadings on the block's first j - 1
 items fixed at 0; see ``language.spec.ExploratoryBlock``).  Its loadings are then rotated as an
 exploratory solution is (``exploration.rotation``, gradient projection): the unrotated loadings A
-are standardized by the items' model-implied standard deviations (so that the rotation does not
+are standardized by the items' model-implied standard deviations (1 for the latent responses of
+ordinal items, whose residual variances are 1 minus their common variances; Muthen 1984) (so that the rotation does not
 depend on the items' units, as an exploratory analysis of correlations does), the rotation gives
 the transformation M, and
 
@@ -87,9 +88,13 @@ def block_rotation_spec(block) -> RotationSpec:
 class _Layout:
     """Where a block's pieces sit in the model's matrices."""
 
-    def __init__(self, model, block, block_factors: frozenset[str]):
+    def __init__(self, model, block, block_factors: frozenset[str], unit_variance: frozenset[str] = frozenset()):
         table = model.table
         self.model = model
+        # items whose model-implied variance is 1 by the fit's identification (the latent responses of ordinal
+        # items, and items analysed in the correlation metric beside them): their residual variance is 1 minus
+        # their common variance, not the 1 the fitted matrices hold
+        self.unit = np.array([x in unit_variance for x in block.item_names], dtype=bool)
         self.rows = np.array([table.observed.index(x) for x in block.item_names])
         self.cols = np.array([table.latent.index(f) for f in block.factor_names])
         inside = set(block_factors)  # the factors of other blocks rotate too: their correlations are not reported
@@ -103,7 +108,7 @@ class _Layout:
         their variances."""
         mats = self.model.matrices(theta)
         A = mats.L[np.ix_(self.rows, self.cols)]
-        sd = np.sqrt(np.diag(mats.implied_covariance())[self.rows])
+        sd = np.where(self.unit, 1.0, np.sqrt(np.diag(mats.implied_covariance())[self.rows]))
         phi = mats.latent_covariance()
         C = phi[np.ix_(self.cols, self.other_cols)]
         return A, sd, C, np.diag(phi)[self.other_cols]
@@ -138,10 +143,11 @@ def _central(function, x: np.ndarray) -> np.ndarray:
 
 
 def rotate_block(model, block, theta: np.ndarray, acov: np.ndarray | None,
-                 block_factors: frozenset[str] = frozenset()) -> RotatedBlock:
+                 block_factors: frozenset[str] = frozenset(), unit_variance: frozenset[str] = frozenset()) -> RotatedBlock:
     """Rotate one exploratory block of the model fitted at ``theta`` (``acov``: the covariance of theta,
-    None for no standard errors; ``block_factors``: the factors of every block of the model)."""
-    layout = _Layout(model, block, block_factors | frozenset(block.factor_names))
+    None for no standard errors; ``block_factors``: the factors of every block of the model;
+    ``unit_variance``: the items whose model-implied variance is 1, as ordinal items' latent responses)."""
+    layout = _Layout(model, block, block_factors | frozenset(block.factor_names), unit_variance)
     spec = block_rotation_spec(block)
     A, sd, C, g_var = layout.pieces(theta)
     p, m = A.shape
@@ -199,8 +205,11 @@ def rotate_block(model, block, theta: np.ndarray, acov: np.ndarray | None,
         starts_at_best=rotated.starts_at_best, target=spec.target)
 
 
-def rotate_blocks(model, spec, theta: np.ndarray | None, acov: np.ndarray | None) -> tuple[RotatedBlock, ...]:
-    """Every exploratory block of ``spec`` (a fitted single-group model), rotated; none without estimates."""
+def rotate_blocks(model, spec, theta: np.ndarray | None, acov: np.ndarray | None,
+                  unit_variance: frozenset[str] = frozenset()) -> tuple[RotatedBlock, ...]:
+    """Every exploratory block of ``spec`` (a fitted single-group model), rotated; none without estimates.
+    ``unit_variance``: the items whose model-implied variance is 1 (ordinal items' latent responses)."""
     if theta is None or not spec.exploratory:
         return ()
-    return tuple(rotate_block(model, block, theta, acov, spec.exploratory_factors) for block in spec.exploratory)
+    return tuple(rotate_block(model, block, theta, acov, spec.exploratory_factors, unit_variance)
+                 for block in spec.exploratory)

@@ -263,7 +263,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
                       robust=robust, estimates=estimates, modification_indices=modification, groups=(group,),
                       warnings=warnings, options=options, problems=problems,
                       parameter_covariance=cov_theta if opt.converged else None, parameter_labels=table.free_labels,
-                      model=model)
+                      model=model, unit_variance_items=frozenset(derived_items))
 
 
 # ---------------------------------------------------------------- several groups
