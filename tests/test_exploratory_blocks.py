@@ -249,3 +249,19 @@ def test_ordinal_block_over_all_items_is_explores_polychoric_solution():
     np.testing.assert_allclose(block.correlations, Phi * np.outer(signs, signs), atol=2e-3)
     np.testing.assert_allclose(block.pattern, block.standardized)  # latent responses of variance 1
     assert np.all(np.isfinite(block.standardized_se)) and np.all(block.standardized_se > 0)
+
+
+@pytest.mark.parametrize("rotation", ["geomin", "varimax"])
+def test_names_stay_with_their_anchor_items(hs_data, rotation):
+    """Names given in the order of a strong item of each ability (x1 visual, x4 textual, x7 speed: the abilities
+    of Holzinger & Swineford 1939's tests) head the columns of those abilities' items, whatever the order of the
+    factors' sizes, and each anchor loads positively."""
+    text = f"exploratory factors visual, textual, speed from x1, x4, x7, x2, x3, x5, x6, x8, x9 rotated by {rotation}\n"
+    block = cfa_tool.fit(text, hs_data).exploratory[0]
+    assert block.factors == ("visual", "textual", "speed")
+    home = {item: block.factors[int(np.argmax(np.abs(block.standardized[i])))] for i, item in enumerate(block.items)}
+    assert home == {**dict.fromkeys(("x1", "x2", "x3"), "visual"), **dict.fromkeys(("x4", "x5", "x6"), "textual"),
+                    **dict.fromkeys(("x7", "x8", "x9"), "speed")}
+    assert np.all(block.standardized[[0, 1, 2], [0, 1, 2]] > 0.5)
+    assert block.to_dict()["names_by"] == "anchor-items"
+    assert "the k-th name (visual, textual, speed)" in " ".join(cfa_tool.fit(text, hs_data).summary().split())

@@ -34,7 +34,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool import options
-from cfa_tool.exploration.choices import RotationMethod
+from cfa_tool.exploration.choices import FactorNaming, RotationMethod
 from cfa_tool.exploration.rotation import RotatedSolution, RotationSpec, rotate, stationarity
 from cfa_tool.numerics.plain import clean
 
@@ -45,7 +45,7 @@ _STEP = 1e-6  # central differences
 class RotatedBlock:
     """One exploratory block of a fitted model, rotated, with delta-method standard errors."""
 
-    factors: tuple[str, ...]  # in the reported order (geomin, quartimin, varimax: largest sum of squares first)
+    factors: tuple[str, ...]  # the names as written: the k-th to the rotated factor its anchor (the k-th item) loads on most
     items: tuple[str, ...]
     rotation: RotationMethod
     oblique: bool
@@ -58,6 +58,7 @@ class RotatedBlock:
     other_factors: tuple[str, ...]  # the model's other factors that covary freely with the block
     other_correlations: np.ndarray  # factors x other factors
     other_correlations_se: np.ndarray
+    names_by: FactorNaming  # how the names were given to the rotated factors
     criterion_value: float
     converged: bool
     starts: int
@@ -67,7 +68,7 @@ class RotatedBlock:
     def to_dict(self) -> dict:
         return clean({
             "factors": list(self.factors), "items": list(self.items), "rotation": self.rotation.value,
-            "oblique": self.oblique, "pattern": self.pattern.tolist(), "pattern_se": self.pattern_se.tolist(),
+            "oblique": self.oblique, "names_by": self.names_by.value, "pattern": self.pattern.tolist(), "pattern_se": self.pattern_se.tolist(),
             "standardized": self.standardized.tolist(), "standardized_se": self.standardized_se.tolist(),
             "factor_correlations": self.correlations.tolist(), "factor_correlations_se": self.correlations_se.tolist(),
             "other_factors": list(self.other_factors), "other_correlations": self.other_correlations.tolist(),
@@ -132,6 +133,24 @@ def _conditions(T: np.ndarray, As: np.ndarray, spec: RotationSpec) -> np.ndarray
                            (T.T @ T - np.eye(m))[rows, cols]])
 
 
+def _names_by_anchor(pattern: np.ndarray, spec: RotationSpec) -> tuple[np.ndarray, np.ndarray]:
+    """(columns, signs): the rotated factor that takes the k-th name, and its sign.
+
+    The k-th factor of the block is anchored by the block's k-th item (the echelon zeros), so the k-th name
+    goes to the rotated factor on which the k-th item loads most: an assignment of the names to the factors
+    maximizing the sum of the anchors' absolute loadings (the linear assignment problem; Kuhn 1955, solved
+    by scipy.optimize.linear_sum_assignment), each factor reflected so that its anchor loads positively.  A
+    target rotation keeps its columns: the names follow the target."""
+    from scipy.optimize import linear_sum_assignment
+
+    m = pattern.shape[1]
+    if spec.method is RotationMethod.TARGET or m < 2:
+        return np.arange(m), np.ones(m)
+    _, columns = linear_sum_assignment(-np.abs(pattern[:m, :]))
+    signs = np.where(pattern[np.arange(m), columns] < 0, -1.0, 1.0)
+    return columns, signs
+
+
 def _central(function, x: np.ndarray) -> np.ndarray:
     columns = []
     for k in range(x.size):
@@ -160,9 +179,11 @@ def rotate_block(model, block, theta: np.ndarray, acov: np.ndarray | None,
     M0 = unordered / np.asarray(rotated.signs)
     T = np.linalg.inv(M0).T if rotated.oblique else M0
 
+    keep, flips = _names_by_anchor(rotated.pattern, spec)
+
     def outputs(theta_: np.ndarray, T_: np.ndarray) -> np.ndarray:
         A_, sd_, C_, g_ = layout.pieces(theta_)
-        M_ = _transformation(T_, rotated)
+        M_ = _transformation(T_, rotated)[:, keep] * flips
         Mi = np.linalg.inv(M_)
         pattern = A_ @ M_
         phi = Mi @ Mi.T
@@ -202,7 +223,9 @@ def rotate_block(model, block, theta: np.ndarray, acov: np.ndarray | None,
         other_factors=layout.others, other_correlations=pieces[3].reshape(m, len(layout.others)),
         other_correlations_se=se[3].reshape(m, len(layout.others)),
         criterion_value=rotated.criterion_value, converged=rotated.converged, starts=rotated.starts,
-        starts_at_best=rotated.starts_at_best, target=spec.target)
+        starts_at_best=rotated.starts_at_best, target=spec.target,
+        names_by=(FactorNaming.ONE_FACTOR if m == 1 else FactorNaming.TARGET if spec.method is RotationMethod.TARGET
+                  else FactorNaming.ANCHOR_ITEMS))
 
 
 def rotate_blocks(model, spec, theta: np.ndarray | None, acov: np.ndarray | None,

@@ -8,6 +8,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from cfa_tool.assessment.reliability import Keying
+from cfa_tool.exploration.choices import FactorNaming
 from cfa_tool.reporting.numbers import missing, num, p_value, unit
 
 GUIDE_NOTE = (
@@ -709,8 +710,12 @@ def _block_loading_table(block, k: int) -> ReportTable:
             f"shown faintly. SE: delta method (implicit differentiation of the rotation's conditions). The block was "
             f"fitted unrotated (factor variances 1, factors uncorrelated, echelon zeros); the rotation does not change "
             f"the fit.")
-    if block.rotation.value != "target":
-        note += " Factors are ordered by their sums of squared loadings; their names follow that order."
+    if block.names_by is FactorNaming.ANCHOR_ITEMS:
+        note += (f" Each name stays with its factor: the k-th name ({', '.join(block.factors)}) goes to the rotated "
+                 f"factor on which the block's k-th item ({', '.join(block.items[:len(block.factors)])}) loads most, "
+                 f"each factor signed so that this item loads positively.")
+    elif block.names_by is FactorNaming.TARGET:
+        note += " The names follow the target's columns."
     if not block.converged:
         note += " The rotation did not converge: these loadings are not its optimum."
     table = _table(f"exploratory_block_{k + 1}", f"Exploratory block {', '.join(block.factors)} ({_rotation_words(block)})",
