@@ -202,7 +202,7 @@ def test_json_holds_the_rotated_block(geomin_fit):
     block = out["exploratory_blocks"][0]
     assert block["rotation"] == "geomin" and block["oblique"] is True
     np.testing.assert_allclose(block["standardized"], geomin_fit.exploratory[0].standardized)
-    assert "delta method" in block["standard_errors"]
+    assert block["standard_errors"] == "delta-method"
 
 
 @pytest.mark.parametrize("command", ["scores", "bootstrap"])
@@ -265,3 +265,96 @@ def test_names_stay_with_their_anchor_items(hs_data, rotation):
     assert np.all(block.standardized[[0, 1, 2], [0, 1, 2]] > 0.5)
     assert block.to_dict()["names_by"] == "anchor-items"
     assert "the k-th name (visual, textual, speed)" in " ".join(cfa_tool.fit(text, hs_data).summary().split())
+
+
+def _two_blocks_data() -> "pd.DataFrame":
+    """Ten items, two 2-factor clusters of five items, the clusters' factors correlated (simulated, fixed seed)."""
+    import pandas as pd
+
+    rng = np.random.default_rng(11)
+    L = np.zeros((10, 4))
+    L[[0, 1, 2], 0] = L[[3, 4], 1] = L[[5, 6, 7], 2] = L[[8, 9], 3] = 0.7
+    L[2, 1] = L[7, 3] = 0.3
+    Phi = np.full((4, 4), 0.35) + 0.65 * np.eye(4)
+    X = rng.multivariate_normal(np.zeros(4), Phi, 800) @ L.T + rng.normal(0, 0.6, (800, 10))
+    return pd.DataFrame(X, columns=[f"y{i}" for i in range(1, 11)])
+
+
+TWO_BLOCKS = ("exploratory factors a1, a2 from y1, y4, y2, y3, y5\n"
+              "exploratory factors b1, b2 from y6, y9, y7, y8, y10 rotated by quartimin\n")
+
+
+def test_correlations_between_two_blocks_are_reported_with_delta_method_errors():
+    """Block a's rotated factors with block b's: cov(a*, b*) = Ma^-1 cov(a, b) Mb^-1' (Asparouhov & Muthen 2009),
+    recomputed here from the fitted matrices with each block rotated afresh by explore's rotation, and its
+    SEs by central differences of that whole computation (step 1e-4) against the reported delta method."""
+    data = _two_blocks_data()
+    fit = cfa_tool.fit(TWO_BLOCKS, data)
+    a, b = fit.exploratory
+    assert a.other_factors == ("b1", "b2") and b.other_factors == ("a1", "a2")
+    spec = parse_model(TWO_BLOCKS)
+    model = StructuredModel(build_parameter_table(spec))
+    rotations = [RotationSpec(RotationMethod.GEOMIN, tolerance=1e-11), RotationSpec(RotationMethod.QUARTIMIN, tolerance=1e-11)]
+
+    def cross(theta):
+        mats = model.matrices(theta)
+        sd = np.sqrt(np.diag(mats.implied_covariance()))
+        inverses = []
+        for block, reported, rotation in zip(spec.exploratory, (a, b), rotations):
+            rows = [model.table.observed.index(x) for x in block.item_names]
+            cols = [model.table.latent.index(f) for f in block.factor_names]
+            solution = rotate(mats.L[np.ix_(rows, cols)] / sd[rows, None], rotation)
+            P = solution.pattern
+            order = [int(np.argmax(np.abs(reported.standardized.T @ P)[k])) for k in range(2)]
+            signs = np.sign(np.sum(P[:, order] * reported.standardized, axis=0))
+            M = solution.transformation[:, order] * signs  # A_std M = the reported pattern
+            inverses.append((np.linalg.inv(M), cols))
+        (Wa, ca), (Wb, cb) = inverses
+        return (Wa @ mats.latent_covariance()[np.ix_(ca, cb)] @ Wb.T).ravel()
+
+    theta = fit.theta
+    np.testing.assert_allclose(a.other_correlations.ravel(), cross(theta), atol=1e-6)
+    np.testing.assert_allclose(b.other_correlations, a.other_correlations.T, atol=1e-10)
+    h = 1e-4
+    J = np.column_stack([(cross(theta + h * e) - cross(theta - h * e)) / (2 * h) for e in np.eye(len(theta))])
+    np.testing.assert_allclose(a.other_correlations_se.ravel(), np.sqrt(np.diag(J @ fit.parameter_covariance @ J.T)),
+                               rtol=2e-3, atol=2e-5)
+    out = fit.to_dict()["exploratory_blocks"][0]
+    assert out["other_factors"] == ["b1", "b2"]
+    np.testing.assert_allclose(out["other_correlations"], a.other_correlations)
+
+
+def test_an_orthogonal_block_reports_its_correlations_with_the_other_factors(hs_data):
+    """A varimax block beside a factor: its rotated factors' correlations with that factor are shown in every
+    format, equal to cov(f*, g) = M' cov(f, g) / sd(g) (M orthogonal) recomputed here from the fitted matrices."""
+    from cfa_tool.reporting.html_report import html_report
+    from cfa_tool.reporting.text_formats import markdown_report
+
+    text = "factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6 rotated by varimax\n"
+    fit = cfa_tool.fit(text, hs_data)
+    block = fit.exploratory[0]
+    assert block.other_factors == ("speed",)
+    model = StructuredModel(build_parameter_table(parse_model(text)))
+    mats = model.matrices(fit.theta)
+    latent = model.table.latent
+    rows = [model.table.observed.index(x) for x in block.items]
+    cols = [latent.index(f) for f in block.factors]
+    g = latent.index("speed")
+    A = mats.L[np.ix_(rows, cols)] / np.sqrt(np.diag(mats.implied_covariance())[rows])[:, None]
+    M = np.linalg.lstsq(A, block.standardized, rcond=None)[0]  # the reported rotation
+    np.testing.assert_allclose(M.T @ M, np.eye(2), atol=1e-8)
+    phi = mats.latent_covariance()
+    expected = M.T @ phi[cols, g] / np.sqrt(phi[g, g])
+    np.testing.assert_allclose(block.other_correlations[:, 0], expected, atol=1e-8)
+    assert np.all(np.isfinite(block.other_correlations_se)) and np.all(block.other_correlations_se > 0)
+    value = f"{block.other_correlations[1, 0]:.2f}".lstrip("0")
+    for report in (" ".join(fit.summary().split()), markdown_report(fit), html_report(fit)):
+        assert "Correlations of the rotated factors visual, textual" in report and value in report
+
+
+def test_diagram_draws_each_correlation_between_two_blocks_once():
+    from cfa_tool.reporting.diagram import _block_rows
+
+    fit = cfa_tool.fit(TWO_BLOCKS, _two_blocks_data())
+    pairs = [frozenset(r.variables) for r in _block_rows(fit) if r.kind == "factor_covariance"]
+    assert len(pairs) == len(set(pairs)) == 1 + 1 + 4  # within a, within b, a with b

@@ -8,7 +8,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from cfa_tool.assessment.reliability import Keying
-from cfa_tool.exploration.choices import FactorNaming
+from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.reporting.numbers import missing, num, p_value, unit
 
 GUIDE_NOTE = (
@@ -687,6 +687,14 @@ def status_line(result) -> str:
 SMALL_LOADING = 0.30  # shown faintly (common practice; the draft model's threshold too)
 
 
+_BLOCK_ERRORS = {
+    BlockErrors.DELTA_METHOD: "SE: delta method (implicit differentiation of the rotation's conditions).",
+    BlockErrors.SINGULAR_ROTATION: "No standard errors: the rotation's conditions are singular at this solution, so the "
+                                   "delta method cannot be applied.",
+    BlockErrors.NO_PARAMETER_COVARIANCE: "No standard errors: the fit gave no covariance of its estimates.",
+}
+
+
 def _rotation_words(block) -> str:
     return f"{block.rotation.value} rotation, {'oblique' if block.oblique else 'orthogonal'}"
 
@@ -707,9 +715,8 @@ def _block_loading_table(block, k: int) -> ReportTable:
             numbers.append([item, block.factors[j], value, se, block.pattern[i, j], block.pattern_se[i, j]])
         rows.append(cells)
     note = (f"Standardized loadings after {_rotation_words(block)}; below {unit(SMALL_LOADING, 2)} in absolute value "
-            f"shown faintly. SE: delta method (implicit differentiation of the rotation's conditions). The block was "
-            f"fitted unrotated (factor variances 1, factors uncorrelated, echelon zeros); the rotation does not change "
-            f"the fit.")
+            f"shown faintly. {_BLOCK_ERRORS[block.errors]} The block was fitted unrotated (factor variances 1, factors "
+            f"uncorrelated, echelon zeros); the rotation does not change the fit.")
     if block.names_by is FactorNaming.ANCHOR_ITEMS:
         note += (f" Each name stays with its factor: the k-th name ({', '.join(block.factors)}) goes to the rotated "
                  f"factor on which the block's k-th item ({', '.join(block.items[:len(block.factors)])}) loads most, "
@@ -739,8 +746,11 @@ def _block_correlation_table(block, k: int) -> ReportTable | None:
     for a, b, r, se in pairs:
         rows.append([a, b, unit(r, 2) if abs(r) <= 1 else num(r, 2), num(se, 3) if np.isfinite(se) else ""])
         numbers.append([a, b, r, se])
+    note = "SE: delta method." if block.errors is BlockErrors.DELTA_METHOD else _BLOCK_ERRORS[block.errors]
+    if not block.oblique and m > 1:
+        note += " The block's own factors are uncorrelated by its orthogonal rotation."
     return _table(f"exploratory_correlations_{k + 1}", f"Correlations of the rotated factors {', '.join(names)}",
-                  columns, rows, "SE: delta method.", values=(["Factor", "With", "Correlation", "SE"], numbers))
+                  columns, rows, note, values=(["Factor", "With", "Correlation", "SE"], numbers))
 
 
 def block_tables(result) -> list[ReportTable]:
