@@ -16,6 +16,8 @@
 
 from __future__ import annotations
 
+from types import SimpleNamespace
+
 import numpy as np
 import pytest
 
@@ -141,6 +143,15 @@ def test_standard_errors_agree_with_a_finite_difference_delta_method(hs_data, ta
     ("exploratory factors f1, f2 from x1..x9 rotated by target\n", "needs its targets", 1, 51),
     ("exploratory factors f1, f2 from x1..x9\nnear zero f1: x1\n", "rotated by geomin", 2, 11),
     ("exploratory factors f1, f2 from x1..x9\nfix variance(f1) = 2\n", "parameter of an exploratory block", 2, 5),
+    # Browne (2001): a target rotation of k factors is identified only with at least k - 1 targets on each factor
+    ("exploratory factors f1, f2, f3 from x1..x9 rotated by target\nnear zero f1: x4..x9\nnear zero f2: x1\n"
+     "near zero f3: x1..x6\n", "at least 2 targets on each factor (Browne 2001), and 'f2' has 1", 3, 11),
+    ("exploratory factors f1, f2 from x1..x9 rotated by target\nnear zero f1: x4..x9\n",
+     "at least 1 target on each factor (Browne 2001), and 'f2' has 0", 1, 51),
+    ("exploratory factors f1, f2 from x1..x5 rotated by target\nnear zero f1: x1..x5\nnear zero f2: x1\n",
+     "'near zero f1' names every item of its block", 2, 11),
+    ("exploratory factors f1 from x1..x3 rotated by target\nnear zero f1: x1\n", "one factor ('f1') has nothing to rotate",
+     1, 47),
 ])
 def test_model_errors_name_the_line_and_column(text, message, line, column):
     with pytest.raises(ModelError) as caught:
@@ -358,3 +369,16 @@ def test_diagram_draws_each_correlation_between_two_blocks_once():
     fit = cfa_tool.fit(TWO_BLOCKS, _two_blocks_data())
     pairs = [frozenset(r.variables) for r in _block_rows(fit) if r.kind == "factor_covariance"]
     assert len(pairs) == len(set(pairs)) == 1 + 1 + 4  # within a, within b, a with b
+
+
+def test_the_note_says_when_standard_errors_could_not_be_computed(geomin_fit):
+    from cfa_tool.exploration.blocks import rotate_blocks
+    from cfa_tool.exploration.choices import BlockErrors
+    from cfa_tool.reporting.tables import block_tables
+
+    spec = parse_model(GEOMIN)
+    block = rotate_blocks(StructuredModel(build_parameter_table(spec)), spec, geomin_fit.theta, None)[0]
+    assert block.errors is BlockErrors.NO_PARAMETER_COVARIANCE and np.all(np.isnan(block.standardized_se))
+    np.testing.assert_allclose(block.standardized, geomin_fit.exploratory[0].standardized, atol=1e-10)
+    notes = " ".join(t.note for t in block_tables(SimpleNamespace(exploratory=(block,))))
+    assert "No standard errors" in notes and "delta method" not in notes

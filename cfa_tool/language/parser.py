@@ -401,12 +401,37 @@ class _Builder:
             targets.setdefault(b, []).append((factor, items))
         out = []
         for b, block in enumerate(blocks):
+            if block.rotation.text == "target" and len(block.factors) == 1:
+                raise self.error(f"a block of one factor ('{block.factors[0]}') has nothing to rotate; leave out "
+                                 f"'rotated by target' and its 'near zero' lines", block.rotation.location)
             if block.rotation.text == "target" and b not in targets:
                 raise self.error("a block rotated by target needs its targets: lines such as 'near zero "
                                  f"{block.factors[0]}: {block.items[-1]}' naming the loadings to aim at 0",
                                  block.rotation.location)
+            if block.rotation.text == "target":
+                self.check_targets(block, targets[b])
             out.append(replace(block, targets=tuple(targets.get(b, ()))))
         return out
+
+    def check_targets(self, block: ExploratoryBlock, targets: list) -> None:
+        """Browne's (2001) condition for the identification of a target rotation of k factors: at least k - 1
+        targets on each factor; and a factor aimed at 0 on every item of the block has nothing left to load on."""
+        k = len(block.factors)
+        aimed: dict[str, set[str]] = {}
+        lines: dict[str, Name] = {}
+        for factor, items in targets:
+            aimed.setdefault(factor.text, set()).update(i.text for i in items)
+            lines.setdefault(factor.text, factor)
+        for factor in block.factors:
+            count = len(aimed.get(factor.text, ()))
+            where = lines.get(factor.text, block.rotation).location
+            if count == len(block.items):
+                raise self.error(f"'near zero {factor}' names every item of its block, so '{factor}' would load on "
+                                 f"none; leave at least one of its loadings free", where)
+            if count < k - 1:
+                raise self.error(f"the target rotation of {k} factors is identified only with at least {k - 1} "
+                                 f"target{'' if k == 2 else 's'} on each factor (Browne 2001), and '{factor}' has {count}; name more "
+                                 f"items on 'near zero {factor}: ...'", where)
 
     def check_block_use(self, blocks, covary, uncorrelated, fixed, freed, equal, starts, bounds, scaling, noninvariant,
                         method_factors, factors) -> None:
