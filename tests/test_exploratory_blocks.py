@@ -152,6 +152,8 @@ def test_standard_errors_agree_with_a_finite_difference_delta_method(hs_data, ta
      "'near zero f1' names every item of its block", 2, 11),
     ("exploratory factors f1 from x1..x3 rotated by target\nnear zero f1: x1\n", "one factor ('f1') has nothing to rotate",
      1, 47),
+    ("factor g: x4, x5, x6\nexploratory factors f1, f2 from x1, x7, x2, x3, x8, x9\nreversed x2 on 1 to 10\n",
+     "'x2' is an item of an exploratory block only", 3, 10),
 ])
 def test_model_errors_name_the_line_and_column(text, message, line, column):
     with pytest.raises(ModelError) as caught:
@@ -382,3 +384,13 @@ def test_the_note_says_when_standard_errors_could_not_be_computed(geomin_fit):
     np.testing.assert_allclose(block.standardized, geomin_fit.exploratory[0].standardized, atol=1e-10)
     notes = " ".join(t.note for t in block_tables(SimpleNamespace(exploratory=(block,))))
     assert "No standard errors" in notes and "delta method" not in notes
+
+
+def test_reversed_item_of_a_block_and_a_factor_is_checked_against_the_factor_only(hs_data):
+    """'reversed' on an item of a block and of a confirmatory factor keys that factor's sum score; the block's
+    unrotated loadings (an arbitrary orientation) give no keying warning and no coefficient."""
+    text = "factor verbal: x4, x5, x6, x2\nexploratory factors visual, speed from x1, x7, x2, x3, x8, x9\nreversed x2 on 1 to 10\n"
+    fit = cfa_tool.fit(text, hs_data)
+    keyed = {r.factor: r for r in fit.groups[0].reliability}
+    assert set(keyed) == {"verbal"} and keyed["verbal"].reversed == ("x2",)
+    assert not any("visual" in w or "speed" in w for w in fit.warnings)

@@ -311,7 +311,7 @@ class _Builder:
         if blocks or near_zero:
             blocks = self.attach_targets(blocks, near_zero)
             self.check_block_use(blocks, covary, uncorrelated, fixed, freed, equal, starts, bounds, scaling,
-                                 noninvariant, method_factors, factors)
+                                 noninvariant, method_factors, factors, reversed_items)
             for block in blocks:  # the unrotated block's identification, written as the model's own statements
                 factors.extend(Factor(f, block.items) for f in block.factors)
                 scaling.append(ScaleSetting(block.factors, "variance", block.location))
@@ -434,8 +434,9 @@ class _Builder:
                                  f"items on 'near zero {factor}: ...'", where)
 
     def check_block_use(self, blocks, covary, uncorrelated, fixed, freed, equal, starts, bounds, scaling, noninvariant,
-                        method_factors, factors) -> None:
-        """The model's other statements may not change a block's parameters: the block sets them."""
+                        method_factors, factors, reversed_items=()) -> None:
+        """The model's other statements may not change a block's parameters: the block sets them; and 'reversed'
+        keys items for sum scores, which a block's factors do not have."""
         block_factors = {f for block in blocks for f in block.factor_names}
         for pair in list(covary) + list(uncorrelated):
             for name in (pair.first, pair.second):
@@ -465,6 +466,14 @@ class _Builder:
             if factor.name.text in block_factors:
                 raise self.error(f"factor '{factor.name}' is declared twice: by 'factor' and by 'exploratory factors'",
                                  factor.name.location)
+        block_items = {x for block in blocks for x in block.item_names}
+        scored = {ind.text for factor in factors for ind in factor.indicators}
+        for keying in reversed_items:
+            for item in keying.items:
+                if item.text in block_items and item.text not in scored:
+                    raise self.error(f"'{item}' is an item of an exploratory block only, and 'reversed' keys items for "
+                                     f"the sum scores of confirmatory factors; a block has none (its rotation signs "
+                                     f"its factors), so leave '{item}' out of 'reversed'", item.location)
 
     def name(self, node: Tree) -> Name:
         token = node.children[0]
