@@ -394,3 +394,25 @@ def test_reversed_item_of_a_block_and_a_factor_is_checked_against_the_factor_onl
     keyed = {r.factor: r for r in fit.groups[0].reliability}
     assert set(keyed) == {"verbal"} and keyed["verbal"].reversed == ("x2",)
     assert not any("visual" in w or "speed" in w for w in fit.warnings)
+
+
+def test_methods_paragraph_counts_each_factors_items_and_a_one_factor_block_is_not_rotated(hs_data):
+    """Three items of 'speed' and six of the block (the model file's own counts); a one-factor block has nothing to
+    rotate, and its loadings are those of the same factor fitted as a confirmatory factor with variance 1."""
+    from cfa_tool.reporting.paragraph import methods_paragraph
+    from cfa_tool.reporting.text_formats import markdown_report
+
+    side = cfa_tool.fit("factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6\n",
+                        hs_data)
+    assert ("three indicators of one factor (speed) and six indicators of two exploratory factors (visual and textual)"
+            in methods_paragraph(side))
+    one = cfa_tool.fit("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nexploratory factors speed from x7..x9\n",
+                       hs_data)
+    block = one.exploratory[0]
+    assert block.names_by.value == "one-factor"
+    report = markdown_report(one)
+    assert "Exploratory block speed (one factor: no rotation)" in report and "speed (geomin" not in report
+    assert "one factor: no rotation" in methods_paragraph(one)
+    # a one-factor block is the confirmatory three-factor model of these data; its standardized speed loadings
+    # .570, .723, .665 (the widely reproduced Holzinger-Swineford three-factor example; recalled from memory)
+    np.testing.assert_allclose(block.standardized[:, 0], [0.570, 0.723, 0.665], atol=2e-3)

@@ -696,6 +696,8 @@ _BLOCK_ERRORS = {
 
 
 def _rotation_words(block) -> str:
+    if len(block.factors) == 1:
+        return "one factor: no rotation"
     return f"{block.rotation.value} rotation, {'oblique' if block.oblique else 'orthogonal'}"
 
 
@@ -714,9 +716,14 @@ def _block_loading_table(block, k: int) -> ReportTable:
                 faint += [(i, 1 + 2 * j), (i, 2 + 2 * j)]
             numbers.append([item, block.factors[j], value, se, block.pattern[i, j], block.pattern_se[i, j]])
         rows.append(cells)
-    note = (f"Standardized loadings after {_rotation_words(block)}; below {unit(SMALL_LOADING, 2)} in absolute value "
-            f"shown faintly. {_BLOCK_ERRORS[block.errors]} The block was fitted unrotated (factor variances 1, factors "
-            f"uncorrelated, echelon zeros); the rotation does not change the fit.")
+    if m == 1:
+        note = (f"Standardized loadings; below {unit(SMALL_LOADING, 2)} in absolute value shown faintly. "
+                f"{'SE: delta method.' if block.errors is BlockErrors.DELTA_METHOD else _BLOCK_ERRORS[block.errors]} "
+                f"The factor's variance is fixed at 1; one factor: no rotation.")
+    else:
+        note = (f"Standardized loadings after {_rotation_words(block)}; below {unit(SMALL_LOADING, 2)} in absolute "
+                f"value shown faintly. {_BLOCK_ERRORS[block.errors]} The block was fitted unrotated (factor variances "
+                f"1, factors uncorrelated, echelon zeros); the rotation does not change the fit.")
     if block.names_by is FactorNaming.ANCHOR_ITEMS:
         note += (f" Each name stays with its factor: the k-th name ({', '.join(block.factors)}) goes to the rotated "
                  f"factor on which the block's k-th item ({', '.join(block.items[:len(block.factors)])}) loads most, "
@@ -749,7 +756,8 @@ def _block_correlation_table(block, k: int) -> ReportTable | None:
     note = "SE: delta method." if block.errors is BlockErrors.DELTA_METHOD else _BLOCK_ERRORS[block.errors]
     if not block.oblique and m > 1:
         note += " The block's own factors are uncorrelated by its orthogonal rotation."
-    return _table(f"exploratory_correlations_{k + 1}", f"Correlations of the rotated factors {', '.join(names)}",
+    title = f"Correlations of the rotated factors {', '.join(names)}" if m > 1 else f"Correlations of the factor {names[0]}"
+    return _table(f"exploratory_correlations_{k + 1}", title,
                   columns, rows, note, values=(["Factor", "With", "Correlation", "SE"], numbers))
 
 
