@@ -75,3 +75,19 @@ class Placement(Enum):
     ON_FACTOR = "on-factor"  # one loading at or above the threshold: on that factor
     SEVERAL_LOADINGS = "several-loadings"  # two or more at or above the threshold: left for the researcher
     NO_LOADING = "no-loading"  # none at or above the threshold: left for the researcher
+
+
+class FactorNaming(Enum):
+    """How an exploratory block's names are given to its rotated factors."""
+
+    ANCHOR_ITEMS = "anchor-items"  # the k-th name to the factor the block's k-th item (its echelon anchor) loads on most
+    TARGET = "target"  # the names follow the target's columns
+    ONE_FACTOR = "one-factor"  # nothing to rotate
+
+
+class BlockErrors(Enum):
+    """Where an exploratory block's standard errors come from, or why it has none."""
+
+    DELTA_METHOD = "delta-method"  # implicit differentiation of the rotation's conditions (Jennrich 1973)
+    SINGULAR_ROTATION = "singular-rotation"  # the rotation's conditions are singular at this solution: none
+    NO_PARAMETER_COVARIANCE = "no-parameter-covariance"  # the fit gave no covariance of its estimates: none

@@ -3,7 +3,8 @@
 The file is comma-separated text (UTF-8).  Its first line names the columns: the word ``item``,
 then one name per factor.  Every further line is one item: its name, then one cell per factor,
 ``0`` (or another number) for a loading to aim at, or an empty cell for a loading left free
-(Browne 1972's partially specified target).  Lines starting with ``#`` are comments.  Items of
+(Browne 1972's partially specified target); each factor needs at least k - 1 targets for k factors, the
+condition for the rotation to be identified (Browne 2001).  Lines starting with ``#`` are comments.  Items of
 the analysis that the file leaves out have every loading free.  Example::
 
     item,visual,textual,speed
@@ -111,4 +112,11 @@ def read_target_file(path: str | Path) -> TargetFile:
     if all(math.isnan(v) for values in rows.values() for v in values):
         raise OptionError(f"{source}: the target aims at no loading (every cell is empty); write 0 where a loading "
                           f"should be near zero")
+    need = len(factors) - 1
+    for k, name in enumerate(factors):
+        count = sum(not math.isnan(values[k]) for values in rows.values())
+        if count < need:
+            raise OptionError(f"{source}: the factor column '{name}' (column {k + 2}) aims at {count} loading"
+                              f"{'' if count == 1 else 's'}, and a target rotation of {len(factors)} factors is "
+                              f"identified only with at least {need} target{'' if need == 1 else 's'} on each factor (Browne 2001)")
     return TargetFile(source, factors, rows)

@@ -311,7 +311,7 @@ class _Builder:
         if blocks or near_zero:
             blocks = self.attach_targets(blocks, near_zero)
             self.check_block_use(blocks, covary, uncorrelated, fixed, freed, equal, starts, bounds, scaling,
-                                 noninvariant, method_factors, factors)
+                                 noninvariant, method_factors, factors, reversed_items)
             for block in blocks:  # the unrotated block's identification, written as the model's own statements
                 factors.extend(Factor(f, block.items) for f in block.factors)
                 scaling.append(ScaleSetting(block.factors, "variance", block.location))
@@ -401,16 +401,42 @@ class _Builder:
             targets.setdefault(b, []).append((factor, items))
         out = []
         for b, block in enumerate(blocks):
+            if block.rotation.text == "target" and len(block.factors) == 1:
+                raise self.error(f"a block of one factor ('{block.factors[0]}') has nothing to rotate; leave out "
+                                 f"'rotated by target' and its 'near zero' lines", block.rotation.location)
             if block.rotation.text == "target" and b not in targets:
                 raise self.error("a block rotated by target needs its targets: lines such as 'near zero "
                                  f"{block.factors[0]}: {block.items[-1]}' naming the loadings to aim at 0",
                                  block.rotation.location)
+            if block.rotation.text == "target":
+                self.check_targets(block, targets[b])
             out.append(replace(block, targets=tuple(targets.get(b, ()))))
         return out
 
+    def check_targets(self, block: ExploratoryBlock, targets: list) -> None:
+        """Browne's (2001) condition for the identification of a target rotation of k factors: at least k - 1
+        targets on each factor; and a factor aimed at 0 on every item of the block has nothing left to load on."""
+        k = len(block.factors)
+        aimed: dict[str, set[str]] = {}
+        lines: dict[str, Name] = {}
+        for factor, items in targets:
+            aimed.setdefault(factor.text, set()).update(i.text for i in items)
+            lines.setdefault(factor.text, factor)
+        for factor in block.factors:
+            count = len(aimed.get(factor.text, ()))
+            where = lines.get(factor.text, block.rotation).location
+            if count == len(block.items):
+                raise self.error(f"'near zero {factor}' names every item of its block, so '{factor}' would load on "
+                                 f"none; leave at least one of its loadings free", where)
+            if count < k - 1:
+                raise self.error(f"the target rotation of {k} factors is identified only with at least {k - 1} "
+                                 f"target{'' if k == 2 else 's'} on each factor (Browne 2001), and '{factor}' has {count}; name more "
+                                 f"items on 'near zero {factor}: ...'", where)
+
     def check_block_use(self, blocks, covary, uncorrelated, fixed, freed, equal, starts, bounds, scaling, noninvariant,
-                        method_factors, factors) -> None:
-        """The model's other statements may not change a block's parameters: the block sets them."""
+                        method_factors, factors, reversed_items=()) -> None:
+        """The model's other statements may not change a block's parameters: the block sets them; and 'reversed'
+        keys items for sum scores, which a block's factors do not have."""
         block_factors = {f for block in blocks for f in block.factor_names}
         for pair in list(covary) + list(uncorrelated):
             for name in (pair.first, pair.second):
@@ -440,6 +466,14 @@ class _Builder:
             if factor.name.text in block_factors:
                 raise self.error(f"factor '{factor.name}' is declared twice: by 'factor' and by 'exploratory factors'",
                                  factor.name.location)
+        block_items = {x for block in blocks for x in block.item_names}
+        scored = {ind.text for factor in factors for ind in factor.indicators}
+        for keying in reversed_items:
+            for item in keying.items:
+                if item.text in block_items and item.text not in scored:
+                    raise self.error(f"'{item}' is an item of an exploratory block only, and 'reversed' keys items for "
+                                     f"the sum scores of confirmatory factors; a block has none (its rotation signs "
+                                     f"its factors), so leave '{item}' out of 'reversed'", item.location)
 
     def name(self, node: Tree) -> Name:
         token = node.children[0]

@@ -47,6 +47,7 @@ class ModelDescription:
     # exploratory blocks: (factors, items, rotation); their factors, identification and loadings are described
     # by the block alone, not in the fields above
     exploratory: tuple[tuple[tuple[str, ...], tuple[str, ...], str], ...] = ()
+    confirmatory_indicators: tuple[str, ...] = ()  # the items of the confirmatory (not exploratory) factors
 
     def to_dict(self) -> dict:
         return {
@@ -110,6 +111,7 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
         higher_order=higher,
         indicators=spec.observed_names,
         cross_loadings=cross,
+        confirmatory_indicators=tuple(factors_of),
         residual_covariances=residual,
         factor_covariances_added=added,
         uncorrelated=uncorrelated,

@@ -289,7 +289,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 implied_mean=mats[g].implied_mean() if means else None,
                 normality=mardia(gm.rows, whitened) if whitened is not None else None,
                 **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics,
-                                     spec.reverse_keyed or None, spec.method_factors, whitened),
+                                     spec.reverse_keyed or None, spec.method_factors | spec.exploratory_factors, whitened),
             )
         )
     for g, result in enumerate(group_results):

@@ -243,7 +243,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized, derived) + _first_step_thresholds(moments,
                                                                                                           order)
     factors, htmt = reliability(final, table.observed, table.latent, R, declared=spec.reverse_keyed or None,
-                                sum_scores=False, not_traits=spec.method_factors)
+                                sum_scores=False, not_traits=spec.method_factors | spec.exploratory_factors)
     if opt.converged:
         warnings.extend(keying_warnings(factors))
     summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
@@ -263,7 +263,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
                       robust=robust, estimates=estimates, modification_indices=modification, groups=(group,),
                       warnings=warnings, options=options, problems=problems,
                       parameter_covariance=cov_theta if opt.converged else None, parameter_labels=table.free_labels,
-                      model=model)
+                      model=model, unit_variance_items=frozenset(derived_items))
 
 
 # ---------------------------------------------------------------- several groups

@@ -351,19 +351,21 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
                n_obs: int, data: DataSummary, observed: tuple[str, ...], latent: tuple[str, ...], fit: FitIndices | None,
                robust: RobustFit | None, estimates, modification_indices, groups, warnings, options,
                group_column: str | None = None, problems: tuple = (), parameter_covariance: np.ndarray | None = None,
-               parameter_labels: tuple[str, ...] = (), model=None) -> FitResult:
+               parameter_labels: tuple[str, ...] = (), model=None,
+               unit_variance_items: frozenset[str] = frozenset()) -> FitResult:
     """The one place a FitResult is assembled, for every estimator (continuous, incomplete and ordinal
     items, one group or several), from the estimation's and the assessment's pieces.  The model's
     names and text come from ``spec``, the estimator line from ``method``, the display settings of
     modification indices from ``options``.  ``model`` (model.implied.StructuredModel) is needed when the model has
-    exploratory blocks: they are rotated here, and the modification indices that name their factors are left out
+    exploratory blocks: they are rotated here (``unit_variance_items``: the items whose model-implied variance is 1,
+    as the latent responses of ordinal items), and the modification indices that name their factors are left out
     (they would test the unrotated factors, which the report does not show)."""
     groups = tuple(groups)
     blocks = ()
     if spec.exploratory:
         from cfa_tool.exploration.blocks import rotate_blocks
 
-        blocks = rotate_blocks(model, spec, theta if converged else None, parameter_covariance)
+        blocks = rotate_blocks(model, spec, theta if converged else None, parameter_covariance, unit_variance_items)
         inside = spec.exploratory_factors
         modification_indices = [m for m in modification_indices if not inside.intersection(m.variables)]
         # the block's unrotated loadings and factor covariances, and coefficients computed from them, describe an

@@ -506,7 +506,7 @@ def _block_rows(result) -> list:
     report table shows every loading) and the rotated factors' correlations."""
     from types import SimpleNamespace
 
-    out = []
+    out, drawn = [], set()
     for block in getattr(result, "exploratory", ()):
         for i, item in enumerate(block.items):
             for j, factor in enumerate(block.factors):
@@ -520,5 +520,7 @@ def _block_rows(result) -> list:
                     for a in range(m) for b in range(a)]
         out += [SimpleNamespace(kind="factor_covariance", variables=(f, g), free=True, group=None,
                                 standardized=float(block.other_correlations[a, k]))
-                for a, f in enumerate(block.factors) for k, g in enumerate(block.other_factors)]
+                for a, f in enumerate(block.factors) for k, g in enumerate(block.other_factors)
+                if g not in drawn]  # two blocks' correlations: drawn once, with the first block
+        drawn.update(block.factors)
     return out

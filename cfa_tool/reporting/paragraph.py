@@ -15,6 +15,7 @@ import math
 
 from cfa_tool.method import Information, FitTest, Items, MissingData
 from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.numbers import unit
 
@@ -84,9 +85,13 @@ def _structure(result, d) -> str:
     if methods:
         named = [f for f in d.first_order if f in methods]
         factors += f" and {_count(len(named), 'method factor')} ({_list(named)})"
-    blocks = [f"{_count(len(f), 'exploratory factor')} ({_list(list(f))})" for f, _, _ in d.exploratory]
-    factors = _list(([factors] if factors else []) + blocks)
-    text = f"{_count(len(d.indicators), 'indicator')} of {factors}"
+    if d.exploratory:  # each part with its own items: a block's, and the confirmatory factors'
+        parts = [f"{_count(len(d.confirmatory_indicators), 'indicator')} of {factors}"] if factors else []
+        parts += [f"{_count(len(items), 'indicator')} of {_count(len(f), 'exploratory factor')} ({_list(list(f))})"
+                  for f, items, _ in d.exploratory]
+        text = _list(parts)
+    else:
+        text = f"{_count(len(d.indicators), 'indicator')} of {factors}"
     for higher, lower in d.higher_order:
         text += f", with a higher-order factor ({higher}) explaining {_list(lower)},"
     return text
@@ -144,14 +149,25 @@ def _block_sentences(result, d) -> str:
         kind = "oblique" if block is None or block.oblique else "orthogonal"
         target = " towards the zeros the model file names (partially specified target; Browne 1972)" \
             if rotation == "target" else ""
-        out.append(f"The loadings of {_list(list(factors))} on every one of {_count(len(items), 'item')} "
+        opening = (f"The loadings of {_list(list(factors))} on every one of {_count(len(items), 'item')} "
                    f"({_list(list(items))}) were estimated as an exploratory block (exploratory structural equation "
-                   f"modelling; Asparouhov & Muthen, 2009): fitted with the factors' variances fixed to 1, uncorrelated, "
+                   f"modelling; Asparouhov & Muthen, 2009): ")
+        if len(factors) == 1:
+            out.append(opening + "one factor, with its variance fixed to 1 (one factor: no rotation); its loadings are "
+                                 "reported standardized by the items' model-implied standard deviations.")
+            continue
+        naming = (" Each factor's name was given to the rotated factor on which the block's item of the same position "
+                  f"({_list(list(items[:len(factors)]))}) loads most, signed so that this item loads positively."
+                  if block is not None and block.names_by is FactorNaming.ANCHOR_ITEMS else "")
+        errors = ("Standard errors of the rotated loadings and factor correlations are delta-method values (implicit "
+                  "differentiation of the rotation's conditions)"
+                  if block is None or block.errors is BlockErrors.DELTA_METHOD
+                  else "Standard errors of the rotated loadings could not be computed")
+        out.append(opening + f"fitted with the factors' variances fixed to 1, uncorrelated, "
                    f"and the loading of the k-th factor on each of the block's first k - 1 items fixed at 0, then "
                    f"rotated by {rotation} ({kind}){target} on the loadings standardized by the items' model-implied "
-                   f"standard deviations; the rotation does not change the fit. Standard errors of the rotated loadings "
-                   f"and factor correlations are delta-method values (implicit differentiation of the rotation's "
-                   f"conditions), and modification indices that name the block's factors are not reported.")
+                   f"standard deviations; the rotation does not change the fit.{naming} {errors}, and modification "
+                   f"indices that name the block's factors are not reported.")
     return " ".join(out)
 
 

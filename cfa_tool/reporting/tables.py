@@ -8,6 +8,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from cfa_tool.assessment.reliability import Keying
+from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.reporting.numbers import missing, num, p_value, unit
 
 GUIDE_NOTE = (
@@ -692,7 +693,17 @@ def status_line(result) -> str:
 SMALL_LOADING = 0.30  # shown faintly (common practice; the draft model's threshold too)
 
 
+_BLOCK_ERRORS = {
+    BlockErrors.DELTA_METHOD: "SE: delta method (implicit differentiation of the rotation's conditions).",
+    BlockErrors.SINGULAR_ROTATION: "No standard errors: the rotation's conditions are singular at this solution, so the "
+                                   "delta method cannot be applied.",
+    BlockErrors.NO_PARAMETER_COVARIANCE: "No standard errors: the fit gave no covariance of its estimates.",
+}
+
+
 def _rotation_words(block) -> str:
+    if len(block.factors) == 1:
+        return "one factor: no rotation"
     return f"{block.rotation.value} rotation, {'oblique' if block.oblique else 'orthogonal'}"
 
 
@@ -711,12 +722,20 @@ def _block_loading_table(block, k: int) -> ReportTable:
                 faint += [(i, 1 + 2 * j), (i, 2 + 2 * j)]
             numbers.append([item, block.factors[j], value, se, block.pattern[i, j], block.pattern_se[i, j]])
         rows.append(cells)
-    note = (f"Standardized loadings after {_rotation_words(block)}; below {unit(SMALL_LOADING, 2)} in absolute value "
-            f"shown faintly. SE: delta method (implicit differentiation of the rotation's conditions). The block was "
-            f"fitted unrotated (factor variances 1, factors uncorrelated, echelon zeros); the rotation does not change "
-            f"the fit.")
-    if block.rotation.value != "target":
-        note += " Factors are ordered by their sums of squared loadings; their names follow that order."
+    if m == 1:
+        note = (f"Standardized loadings; below {unit(SMALL_LOADING, 2)} in absolute value shown faintly. "
+                f"{'SE: delta method.' if block.errors is BlockErrors.DELTA_METHOD else _BLOCK_ERRORS[block.errors]} "
+                f"The factor's variance is fixed at 1; one factor: no rotation.")
+    else:
+        note = (f"Standardized loadings after {_rotation_words(block)}; below {unit(SMALL_LOADING, 2)} in absolute "
+                f"value shown faintly. {_BLOCK_ERRORS[block.errors]} The block was fitted unrotated (factor variances "
+                f"1, factors uncorrelated, echelon zeros); the rotation does not change the fit.")
+    if block.names_by is FactorNaming.ANCHOR_ITEMS:
+        note += (f" Each name stays with its factor: the k-th name ({', '.join(block.factors)}) goes to the rotated "
+                 f"factor on which the block's k-th item ({', '.join(block.items[:len(block.factors)])}) loads most, "
+                 f"each factor signed so that this item loads positively.")
+    elif block.names_by is FactorNaming.TARGET:
+        note += " The names follow the target's columns."
     if not block.converged:
         note += " The rotation did not converge: these loadings are not its optimum."
     table = _table(f"exploratory_block_{k + 1}", f"Exploratory block {', '.join(block.factors)} ({_rotation_words(block)})",
@@ -740,8 +759,12 @@ def _block_correlation_table(block, k: int) -> ReportTable | None:
     for a, b, r, se in pairs:
         rows.append([a, b, unit(r, 2) if abs(r) <= 1 else num(r, 2), num(se, 3) if np.isfinite(se) else ""])
         numbers.append([a, b, r, se])
-    return _table(f"exploratory_correlations_{k + 1}", f"Correlations of the rotated factors {', '.join(names)}",
-                  columns, rows, "SE: delta method.", values=(["Factor", "With", "Correlation", "SE"], numbers))
+    note = "SE: delta method." if block.errors is BlockErrors.DELTA_METHOD else _BLOCK_ERRORS[block.errors]
+    if not block.oblique and m > 1:
+        note += " The block's own factors are uncorrelated by its orthogonal rotation."
+    title = f"Correlations of the rotated factors {', '.join(names)}" if m > 1 else f"Correlations of the factor {names[0]}"
+    return _table(f"exploratory_correlations_{k + 1}", title,
+                  columns, rows, note, values=(["Factor", "With", "Correlation", "SE"], numbers))
 
 
 def block_tables(result) -> list[ReportTable]:

@@ -55,7 +55,10 @@ def test_target_file_gives_the_same_solution_as_the_matrix(tmp_path, capsys, hs_
     ("item,a,b\nx1,0,zero\n", ":2:6: 'zero' is not a number"),
     ("item,a,b\nx1,0,\nx1,,0\n", ":3:1: the item 'x1' is listed twice"),
     ("item,a,b\nx1,,\n", "aims at no loading"),
-    ("item,a,b\nq7,0,\n", "the target names 'q7', which is not among the items explored"),
+    ("item,a,b\nq7,0,0\n", "the target names 'q7', which is not among the items explored"),
+    # Browne (2001): a target rotation of k factors is identified only with at least k - 1 targets on each factor
+    ("item,a,b,c\nx1,,0,0\nx4,0,,0\nx7,0,,\n", "the factor column 'b' (column 3) aims at 1 loading, and a target "
+                                               "rotation of 3 factors is identified only with at least 2 targets"),
 ])
 def test_bad_target_files_get_one_line_errors(tmp_path, capsys, content, message):
     path = tmp_path / "target.csv"

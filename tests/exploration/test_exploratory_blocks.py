@@ -16,6 +16,8 @@
 
 from __future__ import annotations
 
+from types import SimpleNamespace
+
 import numpy as np
 import pytest
 
@@ -141,6 +143,17 @@ def test_standard_errors_agree_with_a_finite_difference_delta_method(hs_data, ta
     ("exploratory factors f1, f2 from x1..x9 rotated by target\n", "needs its targets", 1, 51),
     ("exploratory factors f1, f2 from x1..x9\nnear zero f1: x1\n", "rotated by geomin", 2, 11),
     ("exploratory factors f1, f2 from x1..x9\nfix variance(f1) = 2\n", "parameter of an exploratory block", 2, 5),
+    # Browne (2001): a target rotation of k factors is identified only with at least k - 1 targets on each factor
+    ("exploratory factors f1, f2, f3 from x1..x9 rotated by target\nnear zero f1: x4..x9\nnear zero f2: x1\n"
+     "near zero f3: x1..x6\n", "at least 2 targets on each factor (Browne 2001), and 'f2' has 1", 3, 11),
+    ("exploratory factors f1, f2 from x1..x9 rotated by target\nnear zero f1: x4..x9\n",
+     "at least 1 target on each factor (Browne 2001), and 'f2' has 0", 1, 51),
+    ("exploratory factors f1, f2 from x1..x5 rotated by target\nnear zero f1: x1..x5\nnear zero f2: x1\n",
+     "'near zero f1' names every item of its block", 2, 11),
+    ("exploratory factors f1 from x1..x3 rotated by target\nnear zero f1: x1\n", "one factor ('f1') has nothing to rotate",
+     1, 47),
+    ("factor g: x4, x5, x6\nexploratory factors f1, f2 from x1, x7, x2, x3, x8, x9\nreversed x2 on 1 to 10\n",
+     "'x2' is an item of an exploratory block only", 3, 10),
 ])
 def test_model_errors_name_the_line_and_column(text, message, line, column):
     with pytest.raises(ModelError) as caught:
@@ -202,7 +215,7 @@ def test_json_holds_the_rotated_block(geomin_fit):
     block = out["exploratory_blocks"][0]
     assert block["rotation"] == "geomin" and block["oblique"] is True
     np.testing.assert_allclose(block["standardized"], geomin_fit.exploratory[0].standardized)
-    assert "delta method" in block["standard_errors"]
+    assert block["standard_errors"] == "delta-method"
 
 
 @pytest.mark.parametrize("command", ["scores", "bootstrap"])
@@ -217,3 +230,189 @@ def test_workflows_that_would_show_the_unrotated_block_refuse_it(tmp_path, comma
     err = capsys.readouterr().err
     assert code == 2 and "not available for a model with an exploratory block" in err and "block.cfa:1:1:" in err
     assert not (tmp_path / "s.csv").exists()
+
+
+RIDER_ITEMS = ("on_time", "seat_available", "short_wait", "accurate_info", "easy_transfer", "clean", "temperature",
+               "room_to_stand")
+
+
+def test_ordinal_block_over_all_items_is_explores_polychoric_solution():
+    """A 2-factor block over all 8 ordinal items, fitted by unweighted least squares on the polychoric
+    correlations, is the least-squares (minimum residual; Harman & Jones 1966) exploratory solution of those
+    correlations: explore's own extraction, rotated by geomin here.  The latent responses have variance 1, so
+    the standardized loadings are the loadings themselves (not divided by sqrt(common variance + 1))."""
+    import pandas as pd
+
+    from cfa_tool.data.polychoric import ordinal_moments
+    from cfa_tool.exploration import ExtractionMethod, from_ordinal_moments
+    from tests.conftest import DATASETS
+
+    frame = pd.read_csv(DATASETS.parent.parent / "demo" / "rider_survey.csv").dropna(subset=list(RIDER_ITEMS))
+    text = f"exploratory factors f1, f2 from {', '.join(RIDER_ITEMS)} rotated by geomin\n"
+    fit = cfa_tool.fit(text, frame, ordinal="all", ordinal_estimator="unweighted")
+    block = fit.exploratory[0]
+    efa = extract(from_ordinal_moments(ordinal_moments(frame, list(RIDER_ITEMS), "rider", frozenset())), 2,
+                  ExtractionMethod.LEAST_SQUARES)
+    theirs = rotate(efa.loadings, RotationSpec(RotationMethod.GEOMIN))
+    P, Phi = theirs.pattern, theirs.factor_correlations
+    order = [int(np.argmax(np.abs(block.standardized.T @ P)[k])) for k in range(2)]  # same columns, same signs
+    P, Phi = P[:, order], Phi[np.ix_(order, order)]
+    signs = np.sign(np.sum(P * block.standardized, axis=0))
+    np.testing.assert_allclose(block.standardized, P * signs, atol=2e-3)
+    np.testing.assert_allclose(block.correlations, Phi * np.outer(signs, signs), atol=2e-3)
+    np.testing.assert_allclose(block.pattern, block.standardized)  # latent responses of variance 1
+    assert np.all(np.isfinite(block.standardized_se)) and np.all(block.standardized_se > 0)
+
+
+@pytest.mark.parametrize("rotation", ["geomin", "varimax"])
+def test_names_stay_with_their_anchor_items(hs_data, rotation):
+    """Names given in the order of a strong item of each ability (x1 visual, x4 textual, x7 speed: the abilities
+    of Holzinger & Swineford 1939's tests) head the columns of those abilities' items, whatever the order of the
+    factors' sizes, and each anchor loads positively."""
+    text = f"exploratory factors visual, textual, speed from x1, x4, x7, x2, x3, x5, x6, x8, x9 rotated by {rotation}\n"
+    block = cfa_tool.fit(text, hs_data).exploratory[0]
+    assert block.factors == ("visual", "textual", "speed")
+    home = {item: block.factors[int(np.argmax(np.abs(block.standardized[i])))] for i, item in enumerate(block.items)}
+    assert home == {**dict.fromkeys(("x1", "x2", "x3"), "visual"), **dict.fromkeys(("x4", "x5", "x6"), "textual"),
+                    **dict.fromkeys(("x7", "x8", "x9"), "speed")}
+    assert np.all(block.standardized[[0, 1, 2], [0, 1, 2]] > 0.5)
+    assert block.to_dict()["names_by"] == "anchor-items"
+    assert "the k-th name (visual, textual, speed)" in " ".join(cfa_tool.fit(text, hs_data).summary().split())
+
+
+def _two_blocks_data() -> "pd.DataFrame":
+    """Ten items, two 2-factor clusters of five items, the clusters' factors correlated (simulated, fixed seed)."""
+    import pandas as pd
+
+    rng = np.random.default_rng(11)
+    L = np.zeros((10, 4))
+    L[[0, 1, 2], 0] = L[[3, 4], 1] = L[[5, 6, 7], 2] = L[[8, 9], 3] = 0.7
+    L[2, 1] = L[7, 3] = 0.3
+    Phi = np.full((4, 4), 0.35) + 0.65 * np.eye(4)
+    X = rng.multivariate_normal(np.zeros(4), Phi, 800) @ L.T + rng.normal(0, 0.6, (800, 10))
+    return pd.DataFrame(X, columns=[f"y{i}" for i in range(1, 11)])
+
+
+TWO_BLOCKS = ("exploratory factors a1, a2 from y1, y4, y2, y3, y5\n"
+              "exploratory factors b1, b2 from y6, y9, y7, y8, y10 rotated by quartimin\n")
+
+
+def test_correlations_between_two_blocks_are_reported_with_delta_method_errors():
+    """Block a's rotated factors with block b's: cov(a*, b*) = Ma^-1 cov(a, b) Mb^-1' (Asparouhov & Muthen 2009),
+    recomputed here from the fitted matrices with each block rotated afresh by explore's rotation, and its
+    SEs by central differences of that whole computation (step 1e-4) against the reported delta method."""
+    data = _two_blocks_data()
+    fit = cfa_tool.fit(TWO_BLOCKS, data)
+    a, b = fit.exploratory
+    assert a.other_factors == ("b1", "b2") and b.other_factors == ("a1", "a2")
+    spec = parse_model(TWO_BLOCKS)
+    model = StructuredModel(build_parameter_table(spec))
+    rotations = [RotationSpec(RotationMethod.GEOMIN, tolerance=1e-11), RotationSpec(RotationMethod.QUARTIMIN, tolerance=1e-11)]
+
+    def cross(theta):
+        mats = model.matrices(theta)
+        sd = np.sqrt(np.diag(mats.implied_covariance()))
+        inverses = []
+        for block, reported, rotation in zip(spec.exploratory, (a, b), rotations):
+            rows = [model.table.observed.index(x) for x in block.item_names]
+            cols = [model.table.latent.index(f) for f in block.factor_names]
+            solution = rotate(mats.L[np.ix_(rows, cols)] / sd[rows, None], rotation)
+            P = solution.pattern
+            order = [int(np.argmax(np.abs(reported.standardized.T @ P)[k])) for k in range(2)]
+            signs = np.sign(np.sum(P[:, order] * reported.standardized, axis=0))
+            M = solution.transformation[:, order] * signs  # A_std M = the reported pattern
+            inverses.append((np.linalg.inv(M), cols))
+        (Wa, ca), (Wb, cb) = inverses
+        return (Wa @ mats.latent_covariance()[np.ix_(ca, cb)] @ Wb.T).ravel()
+
+    theta = fit.theta
+    np.testing.assert_allclose(a.other_correlations.ravel(), cross(theta), atol=1e-6)
+    np.testing.assert_allclose(b.other_correlations, a.other_correlations.T, atol=1e-10)
+    h = 1e-4
+    J = np.column_stack([(cross(theta + h * e) - cross(theta - h * e)) / (2 * h) for e in np.eye(len(theta))])
+    np.testing.assert_allclose(a.other_correlations_se.ravel(), np.sqrt(np.diag(J @ fit.parameter_covariance @ J.T)),
+                               rtol=2e-3, atol=2e-5)
+    out = fit.to_dict()["exploratory_blocks"][0]
+    assert out["other_factors"] == ["b1", "b2"]
+    np.testing.assert_allclose(out["other_correlations"], a.other_correlations)
+
+
+def test_an_orthogonal_block_reports_its_correlations_with_the_other_factors(hs_data):
+    """A varimax block beside a factor: its rotated factors' correlations with that factor are shown in every
+    format, equal to cov(f*, g) = M' cov(f, g) / sd(g) (M orthogonal) recomputed here from the fitted matrices."""
+    from cfa_tool.reporting.html_report import html_report
+    from cfa_tool.reporting.text_formats import markdown_report
+
+    text = "factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6 rotated by varimax\n"
+    fit = cfa_tool.fit(text, hs_data)
+    block = fit.exploratory[0]
+    assert block.other_factors == ("speed",)
+    model = StructuredModel(build_parameter_table(parse_model(text)))
+    mats = model.matrices(fit.theta)
+    latent = model.table.latent
+    rows = [model.table.observed.index(x) for x in block.items]
+    cols = [latent.index(f) for f in block.factors]
+    g = latent.index("speed")
+    A = mats.L[np.ix_(rows, cols)] / np.sqrt(np.diag(mats.implied_covariance())[rows])[:, None]
+    M = np.linalg.lstsq(A, block.standardized, rcond=None)[0]  # the reported rotation
+    np.testing.assert_allclose(M.T @ M, np.eye(2), atol=1e-8)
+    phi = mats.latent_covariance()
+    expected = M.T @ phi[cols, g] / np.sqrt(phi[g, g])
+    np.testing.assert_allclose(block.other_correlations[:, 0], expected, atol=1e-8)
+    assert np.all(np.isfinite(block.other_correlations_se)) and np.all(block.other_correlations_se > 0)
+    value = f"{block.other_correlations[1, 0]:.2f}".lstrip("0")
+    for report in (" ".join(fit.summary().split()), markdown_report(fit), html_report(fit)):
+        assert "Correlations of the rotated factors visual, textual" in report and value in report
+
+
+def test_diagram_draws_each_correlation_between_two_blocks_once():
+    from cfa_tool.reporting.diagram import _block_rows
+
+    fit = cfa_tool.fit(TWO_BLOCKS, _two_blocks_data())
+    pairs = [frozenset(r.variables) for r in _block_rows(fit) if r.kind == "factor_covariance"]
+    assert len(pairs) == len(set(pairs)) == 1 + 1 + 4  # within a, within b, a with b
+
+
+def test_the_note_says_when_standard_errors_could_not_be_computed(geomin_fit):
+    from cfa_tool.exploration.blocks import rotate_blocks
+    from cfa_tool.exploration.choices import BlockErrors
+    from cfa_tool.reporting.tables import block_tables
+
+    spec = parse_model(GEOMIN)
+    block = rotate_blocks(StructuredModel(build_parameter_table(spec)), spec, geomin_fit.theta, None)[0]
+    assert block.errors is BlockErrors.NO_PARAMETER_COVARIANCE and np.all(np.isnan(block.standardized_se))
+    np.testing.assert_allclose(block.standardized, geomin_fit.exploratory[0].standardized, atol=1e-10)
+    notes = " ".join(t.note for t in block_tables(SimpleNamespace(exploratory=(block,))))
+    assert "No standard errors" in notes and "delta method" not in notes
+
+
+def test_reversed_item_of_a_block_and_a_factor_is_checked_against_the_factor_only(hs_data):
+    """'reversed' on an item of a block and of a confirmatory factor keys that factor's sum score; the block's
+    unrotated loadings (an arbitrary orientation) give no keying warning and no coefficient."""
+    text = "factor verbal: x4, x5, x6, x2\nexploratory factors visual, speed from x1, x7, x2, x3, x8, x9\nreversed x2 on 1 to 10\n"
+    fit = cfa_tool.fit(text, hs_data)
+    keyed = {r.factor: r for r in fit.groups[0].reliability}
+    assert set(keyed) == {"verbal"} and keyed["verbal"].reversed == ("x2",)
+    assert not any("visual" in w or "speed" in w for w in fit.warnings)
+
+
+def test_methods_paragraph_counts_each_factors_items_and_a_one_factor_block_is_not_rotated(hs_data):
+    """Three items of 'speed' and six of the block (the model file's own counts); a one-factor block has nothing to
+    rotate, and its loadings are those of the same factor fitted as a confirmatory factor with variance 1."""
+    from cfa_tool.reporting.paragraph import methods_paragraph
+    from cfa_tool.reporting.text_formats import markdown_report
+
+    side = cfa_tool.fit("factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6\n",
+                        hs_data)
+    assert ("three indicators of one factor (speed) and six indicators of two exploratory factors (visual and textual)"
+            in methods_paragraph(side))
+    one = cfa_tool.fit("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nexploratory factors speed from x7..x9\n",
+                       hs_data)
+    block = one.exploratory[0]
+    assert block.names_by.value == "one-factor"
+    report = markdown_report(one)
+    assert "Exploratory block speed (one factor: no rotation)" in report and "speed (geomin" not in report
+    assert "one factor: no rotation" in methods_paragraph(one)
+    # a one-factor block is the confirmatory three-factor model of these data; its standardized speed loadings
+    # .570, .723, .665 (the widely reproduced Holzinger-Swineford three-factor example; recalled from memory)
+    np.testing.assert_allclose(block.standardized[:, 0], [0.570, 0.723, 0.665], atol=2e-3)
