@@ -907,6 +907,16 @@ def _cautions(result: AlignmentResult) -> list[str]:
                 out.append(f"in the Monte Carlo check the estimated means of {c.factor} correlate {c.mean_correlation:.3f} "
                            f"on average with the true ones, below the {TRUSTED_CORRELATION:.2f} the method's authors ask "
                            f"for (a rule of thumb): its aligned means may not order the groups reliably")
+        by_name = {f.factor: f for f in result.factors}
+        for c in result.check.factors:
+            ses = [g.mean_se for g in by_name[c.factor].groups if np.isfinite(g.mean_se) and g.mean_se > 0]
+            if ses and np.isfinite(c.mean_error) and c.mean_error > 1.5 * float(np.sqrt(np.mean(np.square(ses)))):
+                # the delta method assumes a loss that is locally quadratic; a flat or many-valleyed loss spreads the
+                # aligned means further than their standard errors say
+                out.append(f"in the Monte Carlo check the aligned means of {c.factor} miss the true ones by "
+                           f"{c.mean_error:.2f} (root mean square), more than their standard errors (about "
+                           f"{float(np.sqrt(np.mean(np.square(ses)))):.2f}) suggest: the standard errors understate the "
+                           f"uncertainty of these means; read the Monte Carlo figure instead")
         if result.check.completed < result.check.trials:
             out.append(f"{result.check.trials - result.check.completed} of the {result.check.trials} Monte Carlo trials "
                        f"had a group whose configural model did not converge and were left out")

@@ -364,3 +364,21 @@ def test_the_terminal_report_keeps_to_80_columns_and_cuts_no_number(tmp_path, ca
     assert max(len(line) for line in printed.splitlines()) <= 80
     assert "\u2026" not in printed  # no cell cut short
     assert "Aligned intercepts of trust, items item_number_1 to " in printed
+
+
+def test_a_monte_carlo_spread_beyond_the_standard_errors_brings_a_caution():
+    # found in use: 12 groups of about 75 rows; the check's root mean square error of the means (0.99) was four
+    # times the delta-method standard errors (about 0.24), and nothing said which to believe
+    from types import SimpleNamespace
+
+    from cfa_tool.workflows.alignment import _cautions
+
+    def result(error):
+        groups = tuple(SimpleNamespace(mean_se=se) for se in (0.0, 0.22, 0.25, 0.24))  # the reference has none
+        factor = SimpleNamespace(factor="worry", converged=True, noninvariant_share=0.0, groups=groups)
+        check = SimpleNamespace(factors=(SimpleNamespace(factor="worry", trusted=True, mean_error=error,
+                                                         mean_correlation=0.99),), completed=10, trials=10)
+        return SimpleNamespace(factors=(factor,), check=check)
+
+    assert any("miss the true ones by 0.99" in c and "about 0.24" in c for c in _cautions(result(0.99)))
+    assert not any("miss the true ones" in c for c in _cautions(result(0.30)))  # within 1.5 times the SEs
