@@ -143,6 +143,7 @@ class FitMethod:
     weighting: Weighting | None = None  # least squares only
     items: Items = Items.CONTINUOUS
     thresholds: bool = False  # ordinal items: thresholds are parameters (the form used with groups)
+    clustered: bool = False  # robust standard errors from per-cluster sums of the rows' scores (a sampling design)
 
     @property
     def ordinal(self) -> bool:
@@ -162,9 +163,11 @@ class FitMethod:
             return f"{self.weighting.label} least squares on polychoric correlations (ordinal items{extra}), robust standard errors"
         text = self.estimator.label
         if self.test is FitTest.SATORRA_BENTLER:
-            text += " with Satorra-Bentler scaled test and robust standard errors"
+            text += (" with Satorra-Bentler scaled test and "
+                     + ("cluster-robust standard errors" if self.clustered else "robust standard errors"))
         elif self.test is FitTest.YUAN_BENTLER:
-            text += " with Yuan-Bentler scaled test and robust (Huber-White) standard errors"
+            text += (" with Yuan-Bentler scaled test and "
+                     + ("cluster-robust standard errors" if self.clustered else "robust (Huber-White) standard errors"))
         if self.full_information:
             text += " (full information, incomplete rows included)"
         if not self.test.robust and self.information in (Information.EXPECTED, Information.OBSERVED):
@@ -174,7 +177,7 @@ class FitMethod:
     def to_dict(self) -> dict:
         return {"estimator": self.estimator.value, "test": self.test.value, "information": self.information.value,
                 "missing": self.missing.value, "weighting": self.weighting.value if self.weighting else None,
-                "items": self.items.value, "thresholds_as_parameters": self.thresholds}
+                "items": self.items.value, "thresholds_as_parameters": self.thresholds, "clustered": self.clustered}
 
 
 class DecisionRule(Choice):

@@ -115,12 +115,18 @@ class SampleDesign:
             parts.append(f"strata ({c.strata}; {self.strata})")
         return "design: " + ", ".join(parts)
 
-    def caution(self) -> str | None:
-        if self.clusters is not None and self.clusters < SMALL_NUMBER_OF_CLUSTERS:
-            return (f"only {self.clusters} clusters in '{self.columns.cluster}': cluster-robust standard errors and tests "
-                    f"are too optimistic with fewer than about 30-50 clusters (common practice); read p-values with "
-                    f"caution")
-        return None
+    def caution(self, free_parameters: int) -> str | None:
+        """Why cluster-robust standard errors are in doubt with this few clusters (None with enough of them): too
+        optimistic below about 30-50 clusters (common practice), and singular with no more clusters than free
+        parameters (the clusters' score sums then span too few dimensions)."""
+        if self.clusters is None or self.clusters >= SMALL_NUMBER_OF_CLUSTERS:
+            return None
+        where = f"Only {self.clusters} clusters in '{self.columns.cluster}'"
+        if self.clusters <= free_parameters:
+            return (f"{where}, no more than the {free_parameters} free parameters: the cluster-robust covariance of "
+                    f"the estimates is singular, so its standard errors and scaled test mean little.")
+        return (f"{where}: cluster-robust standard errors and tests are too optimistic with fewer than about 30-50 "
+                f"clusters (common practice).")
 
 
 def design_columns(weights: str | None = None, cluster: str | None = None, strata: str | None = None,

@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import os
-import re
 from dataclasses import replace
 from functools import lru_cache
 from pathlib import Path
@@ -336,39 +335,29 @@ def design_test(fit_options, design: DesignColumns):
     if fit_options.information is not None:
         raise OptionError("with sampling weights, clusters or strata the standard errors are sandwich ones, so the "
                           "information they come from (--standard-errors-from) cannot be chosen; remove that option")
-    if fit_options.test is FitTest.NORMAL:  # resolved for the rows as --robust is (FitTest.for_rows)
-        return replace(fit_options, test=FitTest.ROBUST.for_rows(fit_options.missing)
-                       if fit_options.missing is not None else FitTest.ROBUST)
+    if fit_options.test is FitTest.NORMAL:  # resolved for the rows as --robust is (FitOptions, assess)
+        return replace(fit_options, test=FitTest.ROBUST)
     return fit_options
 
 
 def with_design(result: FitResult, design) -> FitResult:
     """The result stating the design it was fitted under (status line, JSON, methods paragraph, cautions)."""
-    caution = design.caution()
     problems = result.problems
+    caution = design.caution(len(result.parameter_labels))
     if caution:  # first in every view: the standard errors and tests themselves are in doubt
         from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-        free = len(result.parameter_labels)
-        fewer = design.clusters <= free
-        explanation = (f"Only {design.clusters} clusters in '{design.columns.cluster}'"
-                       + (f", no more than the {free} free parameters: the cluster-robust covariance of the estimates "
-                          f"is singular, so its standard errors and scaled test mean little." if fewer else
-                          ": cluster-robust standard errors and tests are too optimistic with fewer than about 30-50 "
-                          "clusters (common practice)."))
-        problems = problems + (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), explanation,
-                                       "read the p-values with caution, or fit without --cluster and say that rows are "
-                                       "nested in clusters."),)
-        caution = None
+        problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), caution,
+                             "read the p-values with caution, or fit without --cluster and say that rows are nested in "
+                             "clusters."),)
     fit = result.fit
     if fit is not None and design.columns.weights is not None and design.columns.kind is WeightKind.SAMPLING:
         # a weighted log-likelihood is a pseudo-likelihood: information criteria built on it would mislead
         fit = replace(fit, log_likelihood=None, aic=None, bic=None, sabic=None)
-    estimator = result.estimator
-    if design.columns.cluster is not None:  # the sandwich's middle is summed by cluster
-        estimator = re.sub(r"robust (\(Huber-White\) )?standard errors", "cluster-robust standard errors", estimator)
-    return replace(result, design=design, fit=fit, estimator=f"{estimator}; {design.status()}",
-                   warnings=((caution,) if caution else ()) + result.warnings, problems=problems)
+    # the sandwich's middle is summed by cluster: the method says so, and the status line follows from it
+    method = replace(result.method, clustered=design.columns.cluster is not None)
+    return replace(result, design=design, fit=fit, method=method,
+                   estimator=f"{method.sentence(len(result.groups))}; {design.status()}", problems=problems)
 
 
 def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, ...],
