@@ -52,7 +52,7 @@ def simulated(seed: int = 7):
 
 def main() -> None:
     import cfa_tool
-    from cfa_tool.workflows.alignment import DEFAULT_TRIALS
+    from cfa_tool.method import ALIGNMENT_TRIALS as DEFAULT_TRIALS
 
     parser = argparse.ArgumentParser()
     parser.add_argument("--repeat", type=int, default=3)

@@ -207,6 +207,7 @@ class ReferenceMean(Choice):
                                            "(the authors' free alignment, identified by non-invariant loadings)")
 
 
-#: alignment: level of the tests that flag non-invariant parameters, and Monte Carlo trials of the aligned means
+#: alignment: level of the pairwise tests that flag non-invariant parameters (the level of the authors' procedure,
+#: recalled), and Monte Carlo trials of the aligned means
 ALIGNMENT_FLAG_LEVEL = 0.01
 ALIGNMENT_TRIALS = 20

@@ -10,8 +10,7 @@ from cfa_tool.commands.common import add_report_options, check_files, emit_repor
 
 
 def add_parser(sub) -> None:
-    from cfa_tool.method import ALIGNMENT_FLAG_LEVEL as DEFAULT_FLAG_LEVEL, ALIGNMENT_TRIALS as DEFAULT_TRIALS, \
-        ReferenceMean
+    from cfa_tool.method import ALIGNMENT_FLAG_LEVEL, ALIGNMENT_TRIALS, ReferenceMean
 
     p = sub.add_parser("align", help="factor means and variances across many groups by alignment (approximate "
                                      "invariance), with the non-invariant loadings and intercepts")
@@ -26,10 +25,10 @@ def add_parser(sub) -> None:
     p.add_argument("--reference-mean", choices=ReferenceMean.words(), default=ReferenceMean.ZERO.value,
                    help="the reference group's factor means: 'zero' (default), or 'estimated' from the non-invariance "
                         "of the loadings")
-    p.add_argument("--flag-level", type=float, default=DEFAULT_FLAG_LEVEL, metavar="P",
-                   help=f"level of the tests that flag non-invariant loadings and intercepts (default {DEFAULT_FLAG_LEVEL:g})")
-    p.add_argument("--trials", type=int, default=DEFAULT_TRIALS, metavar="N",
-                   help=f"simulated data sets of the Monte Carlo check of the aligned means (default {DEFAULT_TRIALS}; "
+    p.add_argument("--flag-level", type=float, default=ALIGNMENT_FLAG_LEVEL, metavar="P",
+                   help=f"level of the tests that flag non-invariant loadings and intercepts (default {ALIGNMENT_FLAG_LEVEL:g})")
+    p.add_argument("--trials", type=int, default=ALIGNMENT_TRIALS, metavar="N",
+                   help=f"simulated data sets of the Monte Carlo check of the aligned means (default {ALIGNMENT_TRIALS}; "
                         f"0 leaves the check out)")
     p.add_argument("--seed", type=int, default=1, help="random seed of the Monte Carlo check (default 1)")
     O.add_incomplete_rows_option(p)

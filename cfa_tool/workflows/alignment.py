@@ -62,9 +62,6 @@ CAUTION_SHARE = 0.25
 #: the correlation of true and estimated means the Monte Carlo check should reach (Muthen & Asparouhov 2014,
 #: a rule of thumb, recalled)
 TRUSTED_CORRELATION = 0.98
-#: level of the pairwise tests that flag non-invariant parameters (the level of the authors' procedure, recalled)
-DEFAULT_FLAG_LEVEL = ALIGNMENT_FLAG_LEVEL
-DEFAULT_TRIALS = ALIGNMENT_TRIALS
 #: a Hessian of the loss whose smallest eigenvalue is below this share of its largest: the group means and
 #: variances are barely determined by the loss (its minimum is flat in some direction)
 FLAT_MINIMUM = 1e-7
@@ -589,8 +586,8 @@ class _Layout:
 
 
 def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str, *, reference_group: str | None = None,
-          reference_mean: str | ReferenceMean = ReferenceMean.ZERO, flag_level: float = DEFAULT_FLAG_LEVEL,
-          trials: int = DEFAULT_TRIALS, seed: int = 1, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
+          reference_mean: str | ReferenceMean = ReferenceMean.ZERO, flag_level: float = ALIGNMENT_FLAG_LEVEL,
+          trials: int = ALIGNMENT_TRIALS, seed: int = 1, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
           keep: tuple[str, ...] | list[str] = (), missing: str | None = None,
           max_iterations: int = 500) -> AlignmentResult:
     """Group factor means and variances under approximate invariance by alignment (Asparouhov & Muthen 2014),
