@@ -191,8 +191,8 @@ def inputs_of(args: argparse.Namespace) -> list[str]:
 
 
 def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
-    """Every output of the run checked before any work (see cfa_tool.output_files)."""
-    from cfa_tool.output_files import check_outputs
+    """Every output of the run checked before any work (see cfa_tool.output_files): the checks of
+    :func:`check_files`, and those of the diagram, simulated rows and picture resolution."""
     from cfa_tool.reporting.picture import picture_format, png_converter, require_converter
 
     diagram = getattr(args, "diagram", None)
@@ -200,8 +200,7 @@ def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
         require_converter(picture_format("--diagram", diagram))
     output = getattr(args, "output", None)
     require_suffix("--output", output, ".csv", "the simulated rows")
-    outputs = [(option, getattr(args, attr, None)) for option, attr in REPORT_FILES]
-    targets = check_outputs(outputs, inputs, [("--tables", getattr(args, "tables", None))])
+    targets = check_files(args, [], inputs)
     if output and "--output" in targets:  # rows of data: an existing file (perhaps someone's data) is never replaced
         from cfa_tool.output_files import check_new_file
 
@@ -214,8 +213,6 @@ def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
         from cfa_tool.reporting.docx_report import NO_PICTURE
 
         print(f"cfa-tool: note: {NO_PICTURE}", file=sys.stderr)
-    args._targets = targets
-    args._stdout_taken = any(t.is_stdout for t in targets.values())
     return targets
 
 
