@@ -6,7 +6,7 @@ import argparse
 from pathlib import Path
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import check_output, emit, inputs_of
+from cfa_tool.commands.common import add_report_options, check_output, emit, inputs_of
 from cfa_tool.method import Information
 
 
@@ -24,15 +24,10 @@ def add_parser(sub) -> None:
 
 def add_fit_outputs(p: argparse.ArgumentParser) -> None:
     """The options of a fit's estimation and of its report files."""
-    O.add_json_option(p)
-    p.add_argument("--html", metavar="PATH", help="write a self-contained HTML report (tables, path diagram, methods paragraph)")
-    p.add_argument("--markdown", metavar="PATH", help="write the report as Markdown")
-    p.add_argument("--docx", metavar="PATH", help="write the report as a Word document for a manuscript (numbered "
-                   "tables, methods paragraph, path diagram)")
+    add_report_options(p)  # JSON, HTML, Markdown, Word and tables, as every command has them
     p.add_argument("--diagram", metavar="PATH", help="write the path diagram (every group) as SVG, or as PNG "
                    "or PDF when PATH ends in .png or .pdf (needs the rsvg-convert program)")
     p.add_argument("--dpi", type=int, default=300, help="resolution of pictures (PNG diagram, Word figure; default 300)")
-    p.add_argument("--tables", metavar="FOLDER", help="write every table as CSV and as LaTeX (booktabs) into FOLDER")
     p.add_argument("--standard-errors-from", dest="information", choices=Information.words(), default=None,
                    help="'expected' or 'observed' information (the curvature of the likelihood the standard errors come "
                         "from; default: expected with complete rows, observed with full-information ML); --robust gives "

@@ -108,10 +108,6 @@ def add_run_options(p: argparse.ArgumentParser) -> None:
     add_report_options(p)
 
 
-def add_json_option(p: argparse.ArgumentParser) -> None:
-    p.add_argument("--json", metavar="PATH", help="also write the result as JSON to PATH ('-' for standard output only)")
-
-
 def add_incomplete_rows_option(p: argparse.ArgumentParser, where: str = "") -> None:
     p.add_argument("--incomplete-rows", dest="missing", choices=MissingData.words(), default=None,
                    help="rows with some answers missing: kept and used by full-information ML (the default when a model "
