@@ -37,6 +37,12 @@ def p_value(value) -> str:
     return "< .001" if value < 0.001 else unit(value, 3)
 
 
+def p_phrase(p) -> str:
+    """A p-value after 'p': '< .001', '> .999' or '= .167'."""
+    text = p_value(p)
+    return text if text.startswith(("<", ">")) else f"= {text}"
+
+
 def signed(value, digits: int = 3) -> str:
     """A change bounded by 1 in size with its sign and without its leading zero (+.026, -.035)."""
     if missing(value):

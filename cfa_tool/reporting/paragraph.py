@@ -17,7 +17,7 @@ from cfa_tool.method import Information, FitTest, Items, MissingData
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
-from cfa_tool.reporting.numbers import unit
+from cfa_tool.reporting.numbers import p_phrase, unit
 
 CHI = "\u03c7\u00b2"
 WORDS = {1: "one", 2: "two", 3: "three", 4: "four", 5: "five", 6: "six", 7: "seven", 8: "eight", 9: "nine", 10: "ten"}
@@ -28,7 +28,7 @@ def _count(n: int, noun: str, plural: str | None = None) -> str:
 
 
 def _p(p: float) -> str:
-    return "p < .001" if p < 0.001 else "p > .999" if p > 0.999 else f"p = {unit(p)}"
+    return f"p {p_phrase(p)}"
 
 
 def _list(words: list[str]) -> str:

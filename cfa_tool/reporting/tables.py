@@ -9,7 +9,7 @@ import numpy as np
 
 from cfa_tool.assessment.reliability import Keying
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
-from cfa_tool.reporting.numbers import missing, num, p_value, unit
+from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, unit
 
 GUIDE_NOTE = (
     "Guide values are common practice (Hu & Bentler 1999), not laws: they were derived for particular models and "
@@ -127,11 +127,6 @@ def row_problem(result, kind: str, variables: tuple[str, ...], group: str | None
         if p.touches(kind, variables, group):
             return p.kind.short
     return ""
-
-
-def p_phrase(p) -> str:
-    text = p_value(p)
-    return text if text.startswith(("<", ">")) else f"= {text}"
 
 
 def fit_table(result) -> ReportTable:
