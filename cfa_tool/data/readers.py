@@ -35,6 +35,8 @@ class LoadedData:
     row_names: pd.Series | None = None
     #: the rows as read, before row filters (None when no filter was applied: ``frame`` holds them all)
     read_frame: pd.DataFrame | None = None
+    #: the row filters applied (as the user wrote them), in order
+    row_filters: tuple[str, ...] = ()
 
 
 EXCEL_SUFFIXES = (".xlsx", ".xlsm")

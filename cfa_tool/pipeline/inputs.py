@@ -145,11 +145,14 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     if not all(type(c) is str for c in frame.columns):  # column labels as text (a renamed copy only when needed)
         frame = frame.set_axis(columns, axis=1)
     notes: list[str] = list(loaded.notes)
-    if keep:
-        frame, notes = apply_filters(frame, [parse_filter(k) for k in keep], loaded.source)
+    filters = [parse_filter(k) for k in keep]
+    if filters:
+        frame, filter_notes = apply_filters(frame, filters, loaded.source)
+        notes += filter_notes
     check_columns(spec, columns, loaded.source)
     check_declared_ranges(spec, frame, loaded.source)
-    return spec, replace(loaded, frame=frame, read_frame=loaded.frame if keep else None), notes
+    return spec, replace(loaded, frame=frame, read_frame=loaded.frame if keep else None,
+                         row_filters=tuple(f.text for f in filters)), notes
 
 
 def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,
@@ -283,7 +286,17 @@ def named_cases(result: FitResult, ids: dict) -> FitResult:
 
 def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
              design: DesignColumns | None = None) -> FitResult:
-    """The fit of rows of raw data (after reading, filters and model checks)."""
+    """The fit of rows of raw data (after reading, filters and model checks), its data summary naming the
+    row filters and the rows the file held before them."""
+    result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
+    if not loaded.row_filters:
+        return result
+    return replace(result, data=replace(result.data, row_filters=loaded.row_filters,
+                                        rows_in_file=len(loaded.read_frame)))
+
+
+def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
+                   design: DesignColumns | None = None) -> FitResult:
     frame, source = loaded.frame, loaded.source
     ordinal_items = ordinal_items_of(spec, ordinal)
     spec = with_ordinal_levels(spec, ordinal_items)

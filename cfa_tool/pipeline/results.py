@@ -114,6 +114,9 @@ class DataSummary:
     categories: tuple[tuple[tuple[float, int], ...], ...] = ()
     # ordinal items with pairwise present rows: (item, item, rows answering both) for each pair
     pair_rows: tuple[tuple[str, str, int], ...] = ()
+    # row filters (--keep) as written, and the rows the file held before them (None without filters)
+    row_filters: tuple[str, ...] = ()
+    rows_in_file: int | None = None
 
     @property
     def pair_range(self) -> tuple[int, int] | None:
@@ -140,6 +143,8 @@ class DataSummary:
                                       for name, cats in zip(self.variables, self.categories)}
         if self.pair_rows:
             out["pair_rows"] = [{"items": [a, b], "rows": c} for a, b, c in self.pair_rows]
+        if self.row_filters:
+            out.update(row_filters=list(self.row_filters), rows_in_file=self.rows_in_file)
         return clean(out)
 
 

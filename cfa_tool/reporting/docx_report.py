@@ -147,7 +147,7 @@ def docx_report(result, dpi: int = DEFAULT_DPI) -> bytes:
     notice = T.problem_notice(result)
     document = _document(result.model_name, notice)
     d = result.data
-    document.add_paragraph(f"Data: {d.source}; {d.n_obs} rows analysed of {d.rows_read} read{T.pair_rows_phrase(d)}. "
+    document.add_paragraph(f"Data: {d.source}; {T.rows_phrase(d)}. "
                             f"{T.status_line(result)}.")
     document.add_heading("Method and results", level=2)
     document.add_paragraph(methods_paragraph(result))

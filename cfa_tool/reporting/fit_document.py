@@ -13,7 +13,7 @@ from cfa_tool.reporting.text_formats import all_tables
 
 def fit_report(result) -> Report:
     d = result.data
-    lines = (f"Model file: {result.model_source}", f"Data: {d.source}; {d.n_obs} rows analysed of {d.rows_read} read",
+    lines = (f"Model file: {result.model_source}", f"Data: {d.source}; {T.rows_phrase(d)}",
              T.status_line(result))
     notes = list(T.normality_lines(result))
     local = T.local_fit_line(result)

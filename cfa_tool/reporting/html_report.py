@@ -81,7 +81,7 @@ def result_tables_html(result) -> str:
     the rows used, then the tables."""
     d = result.data
     parts = [problem_banner(result)] if T.problem_notice(result) is not None else []
-    parts += [f'<p class="note">N = {d.n_obs} rows analysed of {d.rows_read} read{esc(T.pair_rows_phrase(d))}'
+    parts += [f'<p class="note">N = {esc(T.rows_phrase(d))}'
              f"{'' if not d.rows_dropped else f'; {d.rows_dropped} rows left out'}. {esc(T.status_line(result))}.</p>"]
     if result.fit is not None and result.converged:
         parts.append(table_html(T.fit_table(result)))
@@ -100,8 +100,8 @@ def html_report(result) -> str:
     sections = [
         problem_banner(result),
         f"<h1>{esc(result.model_name)}</h1>",
-        f'<p class="note">Model file {esc(result.model_source)}; data {esc(d.source)}; {d.n_obs} rows analysed of {d.rows_read} read'
-        f"{esc(T.pair_rows_phrase(d))}{'' if not d.rows_dropped else f', {d.rows_dropped} left out'}. {esc(T.status_line(result))}.</p>",
+        f'<p class="note">Model file {esc(result.model_source)}; data {esc(d.source)}; {esc(T.rows_phrase(d))}'
+        f"{'' if not d.rows_dropped else f', {d.rows_dropped} left out'}. {esc(T.status_line(result))}.</p>",
     ]
     if not result.converged:
         sections.append('<p class="caution">The estimation did not converge. Nothing below is a result.</p>')

@@ -216,6 +216,9 @@ def _capital(text: str) -> str:
 def _sample_phrase(result) -> str:
     data = result.data
     text = f"N = {result.n_obs}"
+    if data.row_filters:
+        text += (f" rows meeting {' and '.join(repr(f) for f in data.row_filters)}, of the {data.rows_in_file} in "
+                 f"the data file")
     full_information = result.method.full_information
     if full_information and result.missing_data is not None:
         coverage = result.missing_data.get("coverage", {})

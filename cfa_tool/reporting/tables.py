@@ -617,6 +617,18 @@ def category_table(result, group: int = 0) -> ReportTable | None:
                   values=(["Item"] + [f"Category {k + 1} rows" for k in range(width)], values))
 
 
+def rows_phrase(data) -> str:
+    """For the data line: the rows analysed, of the rows read or of those the row filters kept (then with the
+    filters and the rows in the file), and the rows per pair of items when pairs used different rows."""
+    if data.row_filters:
+        which = "filter" if len(data.row_filters) == 1 else "filters"
+        kept = (f"{data.rows_read} kept by the row {which} {', '.join(repr(f) for f in data.row_filters)} "
+                f"({data.rows_in_file} rows in the file)")
+    else:
+        kept = f"{data.rows_read} read"
+    return f"{data.n_obs} rows analysed of {kept}{pair_rows_phrase(data)}"
+
+
 def pair_rows_phrase(data) -> str:
     """For the data line: how many rows the pairs of ordinal items were computed from when rows with gaps
     were kept (pairwise present rows); empty otherwise."""

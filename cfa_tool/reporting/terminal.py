@@ -102,7 +102,7 @@ def render(result, console: Console) -> None:
     console.print(Text(result.model_name, style="bold underline"))
     d = result.data
     console.print(f"Model file: {result.model_source}")
-    console.print(f"Data: {d.source}; {d.n_obs} rows analysed of {d.rows_read} read{T.pair_rows_phrase(d)}")
+    console.print(f"Data: {d.source}; {T.rows_phrase(d)}")
     console.print(T.status_line(result))
     console.print()
     notice = T.problem_notice(result)

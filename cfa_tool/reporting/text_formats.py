@@ -56,8 +56,7 @@ def markdown_report(result) -> str:
     notice = T.problem_notice(result)
     if notice is not None:
         parts += [f"## {markdown_text(notice.heading)}", ""] + [f"- {markdown_text(line)}" for line in notice.lines] + [""]
-    parts += [markdown_text(f"Data: {result.data.source}; {result.data.n_obs} rows analysed of {result.data.rows_read} read"
-                            f"{T.pair_rows_phrase(result.data)}. "
+    parts += [markdown_text(f"Data: {result.data.source}; {T.rows_phrase(result.data)}. "
                             f"{T.status_line(result)}."), "",
              "## Summary for a paper", "", markdown_text(methods_paragraph(result)), ""]
     for line in T.normality_lines(result):

@@ -332,3 +332,24 @@ def test_tab_separated_utf16_with_decimal_commas(tmp_path, hs_data, hs_three):
     path = tmp_path / "unicode.txt"
     path.write_bytes(text.encode("utf-16"))
     assert cfa_tool.fit(THREE_FACTORS, str(path)).fit.chi_square == pytest.approx(hs_three.fit.chi_square, rel=1e-9)
+
+
+def test_row_filters_are_stated_where_the_rows_are(hs_data, tmp_path):
+    # the data line, the methods paragraph and the JSON name the filters and the rows the file held; what reading
+    # the file noted (here: a row-name column) is still said when a filter is applied
+    from cfa_tool.reporting.paragraph import methods_paragraph
+    from cfa_tool.reporting.tables import rows_phrase
+
+    path = tmp_path / "rows.csv"
+    hs_data.to_csv(path)  # the index written as a first column without a name: row names
+    result = cfa_tool.fit(THREE_FACTORS, path, keep=["school = Pasteur"])
+    assert rows_phrase(result.data) == ("156 rows analysed of 156 kept by the row filter 'school = Pasteur' "
+                                        "(301 rows in the file)")
+    assert "N = 156 rows meeting 'school = Pasteur', of the 301 in the data file" in methods_paragraph(result)
+    saved = result.to_dict()["data"]
+    assert saved["row_filters"] == ["school = Pasteur"] and saved["rows_in_file"] == 301
+    assert any("read as row names" in w for w in result.warnings)
+    assert any("kept 156 of 301 rows" in w for w in result.warnings)
+    unfiltered = cfa_tool.fit(THREE_FACTORS, path)
+    assert rows_phrase(unfiltered.data) == "301 rows analysed of 301 read"
+    assert "row_filters" not in unfiltered.to_dict()["data"]
