@@ -16,6 +16,7 @@ def add_parser(sub) -> None:
     O.add_data_options(compare)
     O.add_group_options(compare, required=False)
     O.add_test_option(compare)
+    O.add_incomplete_rows_option(compare, "; every model is fitted to the same rows either way")
     O.add_ordinal_options(compare)
     O.add_design_options(compare)
     add_report_options(compare)
@@ -26,6 +27,6 @@ def run(args: argparse.Namespace) -> int:
 
     check_output(args, inputs_of(args))
     result = compare([Path(m) for m in args.models], args.data, group=args.group, reference_group=args.reference_group,
-                     test=O.fit_test(args), sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
+                     test=O.fit_test(args), missing=args.missing, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
                      ordinal=O.ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator, **O.design_args(args))
     return emit(args, result)

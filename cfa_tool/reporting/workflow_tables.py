@@ -4,6 +4,7 @@ every writer draws.  Problems of a solution come first; the cautions come last."
 
 from __future__ import annotations
 
+from cfa_tool.method import MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.numbers import missing, num, p_value, short, signed, unit
@@ -99,12 +100,20 @@ def comparison_report(comparison) -> Report:
                  f"is not admissible: that is no reason to prefer it." for name, indices in lowest.items()]
     total = comparison.n_obs + comparison.rows_dropped
     cautions = []
-    if comparison.rows_dropped > 0.05 * total:
+    full_information = comparison.missing is MissingData.FULL_INFORMATION
+    if comparison.rows_dropped > 0.05 * total and not full_information:
         cautions.append(f"{comparison.rows_dropped} of {total} rows ({100 * comparison.rows_dropped / total:.0f}%) miss an "
                         f"answer on some model's variables and are left out of every model, so that all are compared on "
                         f"the same rows; the rows left out may differ from those kept.")
-    lines = (f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
-             f"answer on any model's variables left out).", *_design_lines(comparison.results[0]))
+    if full_information:
+        left = (f"{comparison.rows_dropped} rows answering none of some model's variables left out" if
+                comparison.rows_dropped else "no row left out")
+        rows_line = (f"All models fitted to the same {comparison.n_obs} rows by full-information ML, rows with missing "
+                     f"answers included ({left}).")
+    else:
+        rows_line = (f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
+                     f"answer on any model's variables left out).")
+    lines = (rows_line, *_design_lines(comparison.results[0]))
     # one column per model, one row per index: readable in 80 columns for the usual two to four models
     robust_rows = any(r.robust is not None for r in comparison.results)
     cells = [_comparison_cells(r, robust_rows) for r in comparison.results]
@@ -141,6 +150,7 @@ def comparison_report(comparison) -> Report:
         notes.append(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
     if comparison.tests:
         notes.append(CHANGE_GUIDES)
+    notes += list(comparison.notes)
     return Report(ResultKind.COMPARE, "Model comparison", _notice(problems, cautions), lines, tuple(tables),
                   tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE))
 

@@ -5,10 +5,12 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (design_test, load_spec, make_options, moments_for, with_design, ordinal_estimator_option, ordinal_items_of,
-                          read_inputs_with_notes, refuse_row_options, summary_source)
+from cfa_tool.pipeline.inputs import (choose_missing_handling, design_test, load_spec, make_options, moments_for,
+                                      ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
+                                      refuse_row_options, summary_source, with_design)
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.data.summary_stats import read_summary_file
@@ -40,11 +42,17 @@ class Comparison(Presentable):
     not_nested: tuple[NotNested, ...]
     n_obs: int
     rows_dropped: int
+    # how rows with gaps were handled: every model fitted to the same rows, complete ones (listwise) or, by
+    # full-information ML, every row answering some of each model's variables
+    missing: MissingData = MissingData.LISTWISE
+    notes: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         return {
             "n_obs": self.n_obs,
             "rows_dropped": self.rows_dropped,
+            "incomplete_rows": self.missing.value,
+            "notes": list(self.notes),
             "models": [
                 {"name": name, "source": r.model_source, "converged": r.converged, "admissible": r.admissible,
                  "problems": [p.to_dict() for p in r.problems],
@@ -64,7 +72,12 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             keep: tuple[str, ...] | list[str] = (), ordinal: str | list[str] | None = None,
             ordinal_estimator: str | None = None, weights: str | None = None, cluster: str | None = None,
             strata: str | None = None, weight_kind: str | None = None, **options) -> Comparison:
-    """Fit every model to the same rows (complete on all their variables) and test each nested pair.
+    """Fit every model to the same rows and test each nested pair.
+
+    Rows with gaps are kept as ``fit`` keeps them: with missing answers every model is fitted by
+    full-information ML to the rows that answer some of each model's variables (the chi-square difference of
+    two such fits is a likelihood-ratio test under missingness at random; Little & Rubin 2002), and with
+    ``missing='listwise'`` to the rows complete on every model's variables.
 
     A sampling design (``weights``, ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights every
     fit and makes the difference tests the scaled ones of the design-based statistics.
@@ -78,10 +91,6 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     if len(models) < 2:
         raise OptionError("comparing needs at least two models")
     fit_options = replace(make_options(options), diagnostics=False)
-    if fit_options.test is FitTest.YUAN_BENTLER or fit_options.missing is MissingData.FULL_INFORMATION:
-        raise OptionError("compare fits every model to the same complete rows (listwise), so full-information ML and "
-                          "its Yuan-Bentler test do not apply here; use the normal-theory or the Satorra-Bentler test")
-    fit_options = replace(fit_options, missing=MissingData.LISTWISE)
     design = design_columns(weights, cluster, strata, weight_kind)
     if design is not None:
         fit_options = design_test(fit_options, design)
@@ -98,35 +107,48 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
         return _compare_summary(specs, names, data, fit_options, group)
-    _, loaded, _ = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep)
+    _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
     for spec in specs[1:]:
         check_columns(spec, list(frame.columns), source)
     used = sorted({x for spec in specs for x in spec.observed_names})
-    complete = frame.dropna(subset=used)
     if group is not None and group in frame.columns:
-        complete = complete.loc[complete[group].notna()]
+        frame = frame.loc[frame[group].notna()]
+    if ordinal_items:
+        if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is FitTest.YUAN_BENTLER:
+            raise OptionError("ordinal items are compared on the rows complete on every model's variables; "
+                              "full-information ML and its Yuan-Bentler test are for continuous items")
+        fit_options = replace(fit_options, missing=MissingData.LISTWISE)
+    else:
+        fit_options, missing_notes = choose_missing_handling(fit_options, frame, tuple(used), None)
+        notes = list(missing_notes) + list(notes)
+    if fit_options.missing is MissingData.FULL_INFORMATION:  # the rows every model can use: some answer on its items
+        answers = [frame[list(spec.observed_names)].notna().to_numpy().any(axis=1) for spec in specs]
+        complete = frame.loc[np.logical_and.reduce(answers)]
+    else:
+        complete = frame.dropna(subset=used)
     if design is not None:
         if ordinal_items:
             raise OptionError(f"ordinal items are not yet fitted with a sampling design, so the {design.names[0][0]} "
                               f"column '{design.names[0][1]}' cannot apply")
         used_columns = set(used)
         complete, _ = check_design(complete, design, tuple(used_columns), group, source)
-    dropped = len(frame) - len(complete)
+    dropped = len(loaded.frame) - len(complete)
     if ordinal_items:
         return _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items,
                                 ordinal_estimator, dropped)
     results = []
     data_groups = []
     for spec, name in zip(specs, names):
-        groups, _ = moments_for(spec, complete, source, group, reference_group, design=design)
+        groups, _ = moments_for(spec, complete, source, group, reference_group, fit_options.missing, design=design)
         data_groups.append(groups)
         with estimation_of(f"model {name}"):
             result = fit_moments(spec, groups, fit_options, group_column=group)
         results.append(with_design(result, design_summary(complete, design, [m for _, m in groups]))
                        if design is not None else result)
     tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
-    return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped)
+    return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
+                      fit_options.missing, tuple(notes))
 
 
 def _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items, method,
@@ -166,11 +188,21 @@ def _pairwise_tests(specs, names, results, data_groups) -> tuple[list[Difference
             return [], reason
         tests = [difference_test(results[a], results[b], names[a], names[b])]
         if results[a].robust is not None and results[b].robust is not None:
-            c10 = scaling_at(m10, data_groups[b], results[b].fit.df)
-            tests.extend(scaled_difference_tests(results[a], results[b], names[a], names[b], c10))
+            if results[b].method.full_information:
+                tests.extend(scaled_difference_tests(results[a], results[b], names[a], names[b], None,
+                                                     FULL_INFORMATION_SCALING))
+            else:
+                c10 = scaling_at(m10, data_groups[b], results[b].fit.df)
+                tests.extend(scaled_difference_tests(results[a], results[b], names[a], names[b], c10))
         return tests, ""
 
     return _each_pair(names, results, test_pair, specs, likelihood=True)
+
+
+#: why the strictly positive scaled difference is not given for full-information fits
+FULL_INFORMATION_SCALING = ("its scaling factor of the general model at the restricted model's estimates is not yet "
+                            "computed for full-information fits; when the 2001 version is not positive, compare the "
+                            "models on the complete rows (--incomplete-rows listwise)")
 
 
 def _each_pair(names, results, test_pair, specs, likelihood: bool) -> tuple[list[DifferenceTest], list[NotNested]]:

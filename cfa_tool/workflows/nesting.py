@@ -48,12 +48,13 @@ def difference_test(restricted: FitResult, general: FitResult, restricted_name: 
 
 
 def scaled_difference_tests(restricted: FitResult, general: FitResult, restricted_name: str, general_name: str,
-                            general_scaling_at_restricted: float | None) -> list[DifferenceTest]:
+                            general_scaling_at_restricted: float | None, without_positive: str = "") -> list[DifferenceTest]:
     """Scaled difference tests for Satorra-Bentler fits.
 
     2001: c_d = (df0 c0 - df1 c1) / (df0 - df1), T_d = (T0 - T1) / c_d (Satorra & Bentler 2001),
     which can be negative; 2010: c1 replaced by the general model's scaling factor evaluated at
-    the restricted model's estimates, which keeps c_d positive (Satorra & Bentler 2010).
+    the restricted model's estimates, which keeps c_d positive (Satorra & Bentler 2010).  ``without_positive``:
+    why that factor is not at hand (the 2010 row then says so).
     """
     r, g = restricted.fit, general.fit
     rr, gr = restricted.robust, general.robust
@@ -66,8 +67,9 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
         if c1 is None:
             if method is DifferenceMethod.SATORRA_BENTLER_2010:
                 out.append(DifferenceTest(restricted_name, general_name, float("nan"), ddf, float("nan"), method,
-                                          delta_cfi, delta_rmsea, "the general model has no degrees of freedom, so its "
-                                          "scaling factor at the restricted model's estimates is not defined"))
+                                          delta_cfi, delta_rmsea, without_positive or "the general model has no degrees "
+                                          "of freedom, so its scaling factor at the restricted model's estimates is not "
+                                          "defined"))
             continue
         cd = (r.df * rr.scaling_factor - g.df * c1) / ddf
         if cd > 0:
@@ -77,7 +79,10 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
         else:
             out.append(DifferenceTest(restricted_name, general_name, float("nan"), ddf, float("nan"), method, delta_cfi,
                                       delta_rmsea, f"its scaling correction is not positive ({cd:.3f}), which can happen "
-                                      f"with this version in small samples; read the strictly positive version"))
+                                      f"with this version in small samples; " + (
+                                          "read the strictly positive version" if not without_positive else
+                                          "compare the models on the complete rows (--incomplete-rows listwise), "
+                                          "where the strictly positive version is computed")))
     return out
 
 

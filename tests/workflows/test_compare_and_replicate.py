@@ -48,9 +48,13 @@ def test_different_variables_are_refused_with_a_reason(hs_data):
 def test_same_rows_for_every_model(hs_data):
     data = hs_data.copy()
     data.loc[data.index[:5], "x9"] = np.nan
-    result = compare(["factor f: x1..x6\n", "factor f: x1..x3\nfactor g: x4..x6\nfactor h: x7..x9\n"], data)
-    assert result.n_obs == 296 and result.rows_dropped == 5
-    assert {r.n_obs for r in result.results} == {296}
+    models = ["factor f: x1..x6\n", "factor f: x1..x3\nfactor g: x4..x6\nfactor h: x7..x9\n"]
+    listwise = compare(models, data, missing="listwise")
+    assert listwise.n_obs == 296 and listwise.rows_dropped == 5
+    assert {r.n_obs for r in listwise.results} == {296}
+    kept = compare(models, data)  # by default rows with gaps are kept (full-information ML), by every model
+    assert kept.n_obs == 301 and kept.rows_dropped == 0
+    assert {r.n_obs for r in kept.results} == {301}
 
 
 def test_compare_needs_two_models(hs_data):
@@ -135,3 +139,54 @@ def test_raw_data_commands_refuse_summary_statistics(tmp_path):
     path.write_text("correlation,a,b,c\na,1\nb,.5,1\nc,.4,.45,1\nn,100\n")
     with pytest.raises(OptionError, match="holds summary statistics"):
         bootstrap("factor f: a, b, c\n", path, replications=10)
+
+
+def _row_log_likelihood(frame, result) -> float:
+    """The normal log-likelihood of every row's observed answers under a fit's implied moments, written
+    independently with scipy (the full-information likelihood; Arbuckle 1996)."""
+    from scipy.stats import multivariate_normal
+
+    names = list(result.observed)
+    group = result.groups[0]
+    mean, cov = group.implied_mean, group.implied_covariance
+    total = 0.0
+    for row in frame[names].to_numpy(dtype=float):
+        seen = ~np.isnan(row)
+        if seen.any():
+            total += multivariate_normal(mean[seen], cov[np.ix_(seen, seen)]).logpdf(row[seen])
+    return total
+
+
+def test_rows_with_gaps_are_kept_by_full_information_as_fit_keeps_them(hs_data):
+    # compare keeps the rows fit keeps (defaults keep data): each model's chi-square equals fit's, and the
+    # difference test is twice the difference of the row-wise log-likelihoods computed here with scipy
+    data = hs_data.copy()
+    rng = np.random.default_rng(7)
+    for column in ("x2", "x5", "x9"):
+        data.loc[rng.random(len(data)) < 0.15, column] = np.nan
+    data.loc[data.index[:2], [f"x{k}" for k in range(1, 10)]] = np.nan  # two rows answer nothing: left out
+    result = compare([ONE_FACTOR, THREE_FACTORS], data)
+    assert result.missing.value == "full-information"
+    assert result.n_obs == len(data) - 2 and result.rows_dropped == 2
+    for spec, fitted in zip((ONE_FACTOR, THREE_FACTORS), result.results):
+        alone = cfa_tool.fit(spec, data)
+        assert fitted.fit.chi_square == pytest.approx(alone.fit.chi_square, rel=1e-8)
+    (test,) = result.tests
+    kept = data.iloc[2:]
+    one, three = result.results
+    expected = 2 * (_row_log_likelihood(kept, three) - _row_log_likelihood(kept, one))
+    assert test.chi_square_difference == pytest.approx(expected, rel=1e-6)
+    listwise = compare([ONE_FACTOR, THREE_FACTORS], data, missing="listwise")
+    assert listwise.missing.value == "listwise" and listwise.n_obs == int(data[[f"x{k}" for k in range(1, 10)]].notna().all(axis=1).sum())
+
+
+def test_robust_comparison_with_gaps_says_why_the_positive_version_is_missing(hs_data):
+    data = hs_data.copy()
+    data.loc[np.random.default_rng(3).random(len(data)) < 0.2, "x4"] = np.nan
+    result = compare([ONE_FACTOR, THREE_FACTORS], data, test="robust")
+    methods = {t.method.value if hasattr(t.method, "value") else t.method: t for t in result.tests}
+    assert all(r.robust.test.value == "yuan-bentler" for r in result.results)
+    assert any(not t.not_computed and t.chi_square_difference > 0 for t in result.tests)
+    missing_positive = [t for t in result.tests if t.not_computed]
+    assert len(missing_positive) == 1 and "full-information" in missing_positive[0].not_computed
+    assert len(methods) == 3
