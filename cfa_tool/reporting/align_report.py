@@ -32,7 +32,8 @@ def header_lines(result) -> list[str]:
     total = sum(result.sizes)
     lines = [f"Model file: {fit.model_source}",
              f"Data: {fit.data.source}; {total} rows in {len(result.groups)} groups of {result.group_column} "
-             f"(smallest {min(result.sizes)}, largest {max(result.sizes)})",
+             f"(smallest {min(result.sizes)}, largest {max(result.sizes)})"
+             + (f", {T.selection_phrase(fit.data)}" if fit.data.row_filters else ""),
              f"Reference group: {result.reference_group}; {result.reference_mean.phrase}",
              f"Configural model (every factor's mean 0 and variance 1 in every group), {fit.estimator}: {_fit_words(fit)}",
              f"Alignment (Asparouhov & Muthen 2014): total simplicity loss f(x) = sqrt(sqrt(x^2 + {EPSILON:g})) over every "

@@ -620,13 +620,17 @@ def category_table(result, group: int = 0) -> ReportTable | None:
 def rows_phrase(data) -> str:
     """For the data line: the rows analysed, of the rows read or of those the row filters kept (then with the
     filters and the rows in the file), and the rows per pair of items when pairs used different rows."""
-    if data.row_filters:
-        which = "filter" if len(data.row_filters) == 1 else "filters"
-        kept = (f"{data.rows_read} kept by the row {which} {', '.join(repr(f) for f in data.row_filters)} "
-                f"({data.rows_in_file} rows in the file)")
-    else:
-        kept = f"{data.rows_read} read"
+    kept = f"{data.rows_read} {selection_phrase(data)}" if data.row_filters else f"{data.rows_read} read"
     return f"{data.n_obs} rows analysed of {kept}{pair_rows_phrase(data)}"
+
+
+def selection_phrase(data) -> str:
+    """Which row filters chose the rows, and how many rows the file held ('' without filters)."""
+    if not data.row_filters:
+        return ""
+    which = "filter" if len(data.row_filters) == 1 else "filters"
+    return (f"kept by the row {which} {', '.join(repr(f) for f in data.row_filters)} ({data.rows_in_file} rows in "
+            f"the file)")
 
 
 def pair_rows_phrase(data) -> str:

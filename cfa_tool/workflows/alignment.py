@@ -597,7 +597,7 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
     ``flag_level``: level of the tests that flag non-invariant loadings and intercepts; ``trials``: Monte Carlo
     replications of the trustworthiness check (0 leaves it out), with ``seed``."""
     from cfa_tool.numerics.threads import blas_threads_for
-    from cfa_tool.pipeline.inputs import continuous_only, read_inputs
+    from cfa_tool.pipeline.inputs import continuous_only, read_inputs_with_notes
 
     if not isinstance(group, str):
         raise OptionError(f"alignment needs a group column, given by its name (text), not {type(group).__name__}")
@@ -605,12 +605,17 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
     flag_level = check.probability("the level of the tests that flag non-invariant parameters", flag_level)
     trials = check.whole_number("the number of Monte Carlo trials", trials, 0, check.MAX_REPLICATIONS)
     seed = check.seed(seed)
-    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
-    notes = [SCALE_SET_ASIDE] if spec.scaling else []
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    frame, source = loaded.frame, loaded.source
+    notes = list(notes) + ([SCALE_SET_ASIDE] if spec.scaling else [])
     spec = configural_spec(continuous_only(spec, "align"))
     with blas_threads_for(len(spec.observed_names)):  # one thread: the matrices are small, and faster so (numerics.threads)
-        return _align(spec, frame, source, group, reference_group, variant, flag_level, trials, seed, missing,
-                      max_iterations, notes)
+        result = _align(spec, frame, source, group, reference_group, variant, flag_level, trials, seed, missing,
+                        max_iterations, notes)
+    if not loaded.row_filters:
+        return result
+    data = replace(result.configural.data, row_filters=loaded.row_filters, rows_in_file=len(loaded.read_frame))
+    return replace(result, configural=replace(result.configural, data=data))
 
 
 SCALE_SET_ASIDE = ("the model's 'scale' statements do not apply here: alignment fits the configural model with every "

@@ -382,3 +382,14 @@ def test_a_monte_carlo_spread_beyond_the_standard_errors_brings_a_caution():
 
     assert any("miss the true ones by 0.99" in c and "about 0.24" in c for c in _cautions(result(0.99)))
     assert not any("miss the true ones" in c for c in _cautions(result(0.30)))  # within 1.5 times the SEs
+
+
+def test_row_filters_are_stated_in_the_alignment_report(hs_data):
+    # the rows chosen by a filter are said in the data line and the notes, as fit says them
+    from cfa_tool.reporting.align_report import header_lines
+
+    result = cfa_tool.align("factor visual: x1, x2, x3\n", hs_data, "school", keep=["ageyr >= 13"], trials=0)
+    kept = int((hs_data.ageyr >= 13).sum())
+    assert sum(result.sizes) == kept
+    assert f"kept by the row filter 'ageyr >= 13' ({len(hs_data)} rows in the file)" in header_lines(result)[1]
+    assert any(f"kept {kept} of {len(hs_data)} rows" in n for n in result.notes)
