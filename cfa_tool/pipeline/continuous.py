@@ -287,6 +287,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 residual_correlations=correlation_residuals(gm.covariance, sigma),
                 sample_mean=gm.mean,
                 implied_mean=mats[g].implied_mean() if means else None,
+                latent_covariance=mats[g].latent_covariance(),
                 normality=mardia(gm.rows, whitened) if whitened is not None else None,
                 **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics,
                                      spec.reverse_keyed or None, spec.method_factors | spec.exploratory_factors, whitened),

@@ -255,7 +255,8 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     group = GroupResult(label=None, data=summary, chi_square=fit.chi_square if fit else None, srmr=fit.srmr if fit else None,
                         r_squared=dict(zip(table.observed, (float(v) for v in r_squared(final)))), sample_covariance=R,
                         implied_covariance=sigma, residual_correlations=R - sigma, sample_mean=np.zeros(p),
-                        implied_mean=None, normality=None, reliability=tuple(factors), htmt=tuple(htmt))
+                        implied_mean=None, normality=None, reliability=tuple(factors), htmt=tuple(htmt),
+                        latent_covariance=final.latent_covariance())
     fit_method = _fit_method(method, Items.MIXED if moments.continuous else Items.ORDINAL, thresholds=False,
                              pairwise=moments.pairwise)
     return fit_result(spec=spec, method=fit_method, converged=opt.converged, iterations=opt.iterations, message=message,
@@ -461,7 +462,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                                          r_squared=dict(zip(table.observed, (float(v) for v in r_squared(mats[g])))),
                                          sample_covariance=mg.correlations, implied_covariance=rho,
                                          residual_correlations=mg.correlations - rho, sample_mean=np.zeros(p),
-                                         implied_mean=None, normality=None, reliability=tuple(factors), htmt=tuple(htmt)))
+                                         implied_mean=None, normality=None, reliability=tuple(factors), htmt=tuple(htmt),
+                                         latent_covariance=mats[g].latent_covariance()))
     per_group = [_pair_rows(m, list(range(p))) for m in moments]
     total_pairs = tuple((a, b, sum(rows[k][2] for rows in per_group)) for k, (a, b, _) in enumerate(per_group[0]))
     total = DataSummary(moments[0].source, sum(m.rows_read for m in moments), dropped, n, table.observed,

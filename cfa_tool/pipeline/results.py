@@ -168,6 +168,9 @@ class GroupResult:
     normalized_residuals: np.ndarray | None = field(repr=False, default=None)
     unusual_cases: tuple = ()  # CaseDiagnostic, largest Mahalanobis distances
     influential_cases: tuple = ()  # CaseDiagnostic, largest shares of the chi-square
+    # the factors' model-implied (total) covariance matrix, in the order of FitResult.latent: with higher-order
+    # factors it differs from the factor (co)variance parameters, which are then disturbance (co)variances
+    latent_covariance: np.ndarray | None = field(repr=False, default=None)
 
     def reliability_dict(self) -> dict:
         return {"factors": [clean(r.to_dict()) for r in self.reliability], "htmt": [clean(h.to_dict()) for h in self.htmt]}

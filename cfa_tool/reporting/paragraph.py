@@ -209,6 +209,16 @@ def _departures(d) -> str:
     return " ".join(sentences)
 
 
+def _range(values: list[float]) -> str:
+    """'ranged from a to b' (in absolute value when some are negative), or 'was a' for one value."""
+    if len(values) == 1:
+        return f"was {unit(values[0], 2)}"
+    if any(v < 0 for v in values):
+        sizes = [abs(v) for v in values]
+        return f"ranged from {unit(min(sizes), 2)} to {unit(max(sizes), 2)} in absolute value"
+    return f"ranged from {unit(min(values), 2)} to {unit(max(values), 2)}"
+
+
 def _capital(text: str) -> str:
     return text[:1].upper() + text[1:]
 
@@ -296,9 +306,10 @@ def methods_paragraph(result) -> str:
                          f"reported only so that the problem can be judged.")
     parts.append(_fit_sentence(result))
     loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed]
+    second = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed]
     blocks = getattr(result, "exploratory", ())
     if loadings:
-        which = "on the confirmatory factors " if blocks else ""
+        which = "on the confirmatory factors " if blocks else ("of the items " if second else "")
         negative = sum(v < 0 for v in loadings)
         if negative:  # reverse-keyed items: a range from -.76 to .81 would read as if -.76 were the weakest
             sizes = [abs(v) for v in loadings]
@@ -307,10 +318,16 @@ def methods_paragraph(result) -> str:
         else:
             parts.append(f"Standardized loadings {which}ranged from {unit(min(loadings), 2)} to "
                          f"{unit(max(loadings), 2)}.")
+    if second:
+        what = "The standardized loadings of the factors on the higher-order factor"
+        parts.append(f"{what} {_range(second)}.")
     corr = [r.standardized for r in result.estimates if r.kind == "factor_covariance"]
     if corr and not result.multigroup:
         which = " of the confirmatory factors" if blocks else ""
-        parts.append(f"Factor correlations{which} ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}.")
+        if len(corr) == 1:
+            parts.append(f"The factor correlation{which} was {unit(corr[0], 2)}.")
+        else:
+            parts.append(f"Factor correlations{which} ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}.")
     if result.fit.df > 0 and not inadmissible:
         parts.append("Fit was judged against conventional guide values (e.g., CFI \u2265 .95, RMSEA \u2264 .06, "
                      "SRMR \u2264 .08; Hu & Bentler, 1999), which are conventions rather than strict criteria.")

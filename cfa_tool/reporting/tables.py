@@ -261,9 +261,27 @@ def _factor_block(result, group: int, k: int, factor: str, rows: list, residual:
                   values=(value_columns, numbers))
 
 
+def implied_factor_correlation(result, group: int, first: str, second: str) -> float | None:
+    """The model-implied correlation of two factors (through higher-order factors too); None when the result
+    does not hold the factors' implied covariance."""
+    phi = result.groups[group].latent_covariance
+    if phi is None:
+        return None
+    i, j = result.latent.index(first), result.latent.index(second)
+    scale = float(np.sqrt(phi[i, i] * phi[j, j]))
+    return float(phi[i, j] / scale) if scale > 0 else None
+
+
+def higher_order(result) -> bool:
+    """Whether some factor is an indicator of another."""
+    observed = set(result.observed)
+    return any(r.kind == "loading" and r.variables[1] not in observed for r in result.estimates)
+
+
 def _factor_matrix(result, group: int) -> ReportTable | None:
-    """The factors' variances (diagonal) and correlations (below it) as one small matrix; each covariance
-    with its SE and interval in the data-file version."""
+    """The factors' variances (diagonal) and correlations (below it) as one small matrix, both implied by the
+    model (with higher-order factors: the total variances and correlations, not the disturbance parameters);
+    each covariance parameter with its SE and interval in the data-file version."""
     label = result.groups[group].label
     rotated = {f for block in getattr(result, "exploratory", ()) for f in block.factors}  # shown by their block
     latent = [f for f in result.latent if f not in rotated]
@@ -271,6 +289,8 @@ def _factor_matrix(result, group: int) -> ReportTable | None:
         return None
     variance = {r.variables[0]: r for r in result.estimates if r.kind == "factor_variance" and r.group == label}
     pairs = {frozenset(r.variables): r for r in result.estimates if r.kind == "factor_covariance" and r.group == label}
+    phi = result.groups[group].latent_covariance
+    total = higher_order(result) and phi is not None
     body, flagged = [], []
     for i, a in enumerate(latent):
         row = [f"{i + 1} {a}"]
@@ -278,12 +298,17 @@ def _factor_matrix(result, group: int) -> ReportTable | None:
         for j, b in enumerate(latent[: i + 1]):
             if i == j:
                 v = variance.get(a)
-                row.append(num(v.estimate) if v is not None else "")
+                if total:
+                    k = result.latent.index(a)
+                    row.append(num(float(phi[k, k])))
+                else:
+                    row.append(num(v.estimate) if v is not None else "")
                 bad |= v is not None and bool(row_problem(result, "factor_variance", (a,), label))
             else:
                 c = pairs.get(frozenset((a, b)))
-                row.append(unit(c.standardized, 2) if c is not None and abs(c.standardized) <= 1 else
-                           (num(c.standardized, 2) if c is not None else "0"))
+                r = implied_factor_correlation(result, group, a, b) if total else (
+                    c.standardized if c is not None else 0.0)
+                row.append(unit(r, 2) if abs(r) <= 1 else num(r, 2))
                 bad |= c is not None and bool(row_problem(result, "factor_covariance", c.variables, label))
         row += [""] * (len(latent) - i - 1)
         body.append(row)
@@ -295,6 +320,10 @@ def _factor_matrix(result, group: int) -> ReportTable | None:
                  r.standardized] for r in pairs.values()]
     suffix = "" if label is None else f"_{group}"
     note = "Diagonal: variances; below: correlations." if len(latent) > 1 else None
+    if total:
+        note = ("Implied by the model: each factor's total variance (diagonal) and the correlations of the factors "
+                "(below), through the higher-order factors. The disturbance variance of a factor that indicates a "
+                "higher-order factor is in the higher-order factor's table (column Disturbance).")
     return _table(f"factors{suffix}", "Factor variances and correlations",
                   [("", "l")] + [(str(k + 1), "r") for k in range(len(latent))], body, note, tuple(flagged),
                   values=(["Factor", "With", "Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper",
@@ -310,6 +339,9 @@ def estimate_tables(result, group: int = 0) -> list[ReportTable]:
     suffix = "" if label is None else f"_{group}"
     residual = {r.variables[0]: r for r in result.estimates if r.kind == "residual_variance" and r.group == label}
     loadings = [r for r in result.estimates if r.kind == "loading" and r.group == label]
+    lower = {r.variables[1] for r in loadings} - set(result.observed)  # factors indicating a higher-order factor
+    residual.update({r.variables[0]: r for r in result.estimates  # their variance parameter: the disturbance
+                     if r.kind == "factor_variance" and r.group == label and r.variables[0] in lower})
     for k, factor in enumerate(result.latent):
         rows = [r for r in loadings if r.variables[0] == factor]
         if not rows:
@@ -481,9 +513,11 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
     for i, a in enumerate(names):
         for b in names[i + 1:]:
             row = correlations.get(frozenset((a, b)))
-            r = row.standardized if row is not None else 0.0
+            implied = implied_factor_correlation(result, group, a, b)
+            r = implied if implied is not None else (row.standardized if row is not None else 0.0)
             interval = ""
-            if row is not None and row.free and {a, b} <= unit_variance:  # the covariance is the correlation
+            if row is not None and row.free and {a, b} <= unit_variance and not higher_order(result):
+                # the covariance parameter is the correlation
                 interval = f"[{unit(row.ci95[0], 2)}, {unit(row.ci95[1], 2)}]"
             h = htmt.get((a, b)) or htmt.get((b, a))
             ratio = "" if h is None or h.ratio is None else unit(h.ratio, 2)

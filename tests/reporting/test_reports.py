@@ -316,3 +316,50 @@ def test_a_table_wider_than_the_terminal_is_shown_in_parts_and_no_number_is_brok
         line_cells = [line.split() for line in text.splitlines() if line.split()[:2] == row[0].split()]
         shown = [cell for cells in line_cells for cell in cells[2:]]
         assert shown == list(row[1:]), (row[0], shown)
+
+
+HIGHER_ORDER = """
+factor visual: x1, x2, x3
+factor textual: x4, x5, x6
+factor speed: x7, x8, x9
+factor ability: visual, textual, speed
+"""
+
+
+def test_higher_order_tables_show_the_implied_factor_correlations(hs_data):
+    # In a second-order model the first-order factors correlate only through the higher-order factor, so
+    # their implied correlation is the product of their standardized second-order loadings (Rindskopf & Rose
+    # 1988). The factor matrix and the distinctness table must show those, not the zero covariance
+    # parameters of the disturbances; the disturbance variances sit in the higher-order factor's table.
+    from cfa_tool.reporting import tables as T
+
+    result = cfa_tool.fit(HIGHER_ORDER, hs_data)
+    std = {r.variables[1]: r.standardized for r in result.estimates
+           if r.kind == "loading" and r.variables[0] == "ability"}
+    expected = {("visual", "textual"): std["visual"] * std["textual"], ("visual", "speed"): std["visual"] * std["speed"],
+                ("textual", "speed"): std["textual"] * std["speed"]}
+    for (a, b), r in expected.items():
+        assert T.implied_factor_correlation(result, 0, a, b) == pytest.approx(r, abs=1e-8)
+    distinct = T.distinct_table(result, 0)
+    shown = {(row[0], row[1]): float(row[2]) for row in distinct.rows}
+    for pair, r in expected.items():
+        assert shown[pair] == pytest.approx(r, abs=0.006)
+    matrix = next(t for t in T.estimate_tables(result, 0) if t.key == "factors")
+    assert float(matrix.rows[1][1]) == pytest.approx(expected[("visual", "textual")], abs=0.006)
+    assert "Implied by the model" in matrix.note
+    ability = next(t for t in T.estimate_tables(result, 0) if t.title.startswith("Factor ability"))
+    disturbance = {r.variables[0]: r.estimate for r in result.estimates if r.kind == "factor_variance"}
+    column = ability.columns.index("Disturbance")
+    for row in ability.rows:
+        assert float(row[column]) == pytest.approx(disturbance[row[0]], abs=6e-4)
+
+
+def test_paragraph_names_second_order_loadings_and_a_single_correlation(hs_data):
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    text = methods_paragraph(cfa_tool.fit(HIGHER_ORDER, hs_data))
+    assert "Standardized loadings of the items ranged from" in text
+    assert "loadings of the factors on the higher-order factor ranged from" in text
+    two = cfa_tool.fit("factor visual: x1, x2, x3\nfactor speed: x7, x8, x9\n", hs_data)
+    (r,) = [e.standardized for e in two.estimates if e.kind == "factor_covariance"]
+    assert f"The factor correlation was {f'{r:.2f}'.replace('0.', '.', 1)}." in methods_paragraph(two)
