@@ -15,9 +15,11 @@ Rules (the contributor guide's "never lose a file"):
   its target replaced, so the link stays a link.  Character devices and named pipes
   (``/dev/null``, a FIFO) and ``-`` (standard output) are written directly, never
   renamed over.
-* A table folder receives files with fixed names; it may replace only files that this
-  tool wrote there before and that are unchanged since (a manifest in the folder
-  records their checksums).  Any other file of the same name is an error naming it.
+* An existing file is replaced only when this tool wrote it there and it is unchanged
+  since: every folder the tool writes into holds a record of the files it wrote and
+  their checksums (``.cfa-tool-files.json``).  Any other existing file - someone's
+  data, a model, a report edited by hand - is an error naming it, before any work.
+  A table folder receives files with fixed names under the same rule.
 """
 
 from __future__ import annotations
@@ -35,9 +37,11 @@ from pathlib import Path
 from cfa_tool.errors import OptionError
 
 STDOUT = "-"
-MANIFEST = ".cfa-tool-tables.json"
+#: in every folder the tool writes into: the files it wrote there and their checksums
+RECORD = ".cfa-tool-files.json"
+OLD_RECORD = ".cfa-tool-tables.json"  # the record of earlier versions (table folders only), read and replaced
 TABLE_SUFFIXES = (".csv", ".tex")  # what a table folder receives
-_MANIFEST_MARK = "cfa-tool table folder"
+_RECORD_MARK = "cfa-tool table folder"  # the record's mark (its first versions recorded table folders only)
 
 #: Filesystems whose files are the kernel's, not the user's.
 PSEUDO_FILESYSTEMS = frozenset({
@@ -139,6 +143,8 @@ def check_target(option: str, given: str) -> Target:
         if not stat.S_ISREG(st.st_mode):
             raise OptionError(f"{option}: '{shown(given)}' is not a regular file; give a file name")
     real = Path(os.path.realpath(path))
+    if real.name in (RECORD, OLD_RECORD):
+        raise OptionError(f"{option}: '{shown(given)}' is the tool's record of the files it wrote; give another name")
     folder = real.parent
     if not folder.is_dir():
         raise OptionError(f"{option}: cannot write '{shown(given)}': the folder '{shown(path.parent)}' does not exist")
@@ -197,6 +203,7 @@ def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path
             if ident is not None and ident in input_ids and not target.direct:
                 raise OptionError(f"{option}: refusing to write to '{shown(given)}': it is the input file "
                                   f"'{shown(input_ids[ident])}'")
+            check_replaceable(target)
             key = ident if ident is not None else os.path.realpath(given)
         if key in seen and not (key == STDOUT or target.direct):
             raise OptionError(f"{option} and {seen[key]} name the same file ('{shown(given)}'); give each output its own file")
@@ -212,7 +219,7 @@ def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path
             if target.is_stdout or target.direct:
                 continue
             real = Path(os.path.realpath(target.given))
-            if str(real.parent) == inside and (real.suffix.lower() in TABLE_SUFFIXES or real.name == MANIFEST):
+            if str(real.parent) == inside and (real.suffix.lower() in TABLE_SUFFIXES or real.name == RECORD):
                 raise OptionError(f"{other} writes '{shown(target.given)}' into the {option} folder, where the tables "
                                   f"go; give it another name or place")
     return targets
@@ -265,6 +272,7 @@ def write_file(target: Target | str | Path, content: str | bytes) -> None:
     """Write one output (see the module's rules for how)."""
     if not isinstance(target, Target):
         target = check_target("output", str(target))
+        check_replaceable(target)
     data = content.encode("utf-8") if isinstance(content, str) else content
     if target.is_stdout:
         sys.stdout.flush()
@@ -278,7 +286,43 @@ def write_file(target: Target | str | Path, content: str | bytes) -> None:
         except OSError as exc:
             raise OptionError(f"{target.option}: cannot write '{shown(target.given)}' ({exc.strerror or exc})") from None
         return
-    _replace_atomically(Path(os.path.realpath(target.given)), data, target.option, target.new_only)
+    real = Path(os.path.realpath(target.given))
+    _replace_atomically(real, data, target.option, target.new_only)
+    if not target.new_only:  # rows of data are never replaced, so they need no record
+        _record(real.parent, {real.name: _checksum(data)}, target.option)
+
+
+def check_replaceable(target: Target) -> None:
+    """An existing regular file is replaced only when this tool wrote it and nobody changed it since."""
+    if target.is_stdout or target.direct:
+        return
+    real = Path(os.path.realpath(target.given))
+    if real.is_file() and not _written_here(real, target.option):
+        raise OptionError(f"{target.option}: '{shown(target.given)}' exists and was not written by cfa-tool (or was "
+                          f"changed since), so it is not replaced; choose another name, or move or delete that file")
+
+
+def _written_here(path: Path, option: str) -> bool:
+    """Whether the existing file ``path`` is one this tool wrote and nobody changed since (by its folder's record)."""
+    recorded = _read_record(path.parent, option).get(path.name)
+    return recorded is not None and recorded == _checksum(path.read_bytes())
+
+
+def _record(folder: Path, written: dict[str, str], option: str) -> None:
+    """Add the files just written (name -> checksum) to ``folder``'s record.  A record that cannot be written
+    costs only the right to replace those files later, so it never fails the run."""
+    try:
+        files = _read_record(folder, option)
+    except OptionError:
+        return  # a foreign file under the record's name: left alone
+    files.update(written)
+    try:
+        _replace_atomically(folder / RECORD, json.dumps({"written by": _RECORD_MARK, "files": files}, indent=1,
+                                                        sort_keys=True).encode("utf-8"), option)
+        if (folder / OLD_RECORD).is_file():
+            os.unlink(folder / OLD_RECORD)  # its files are in the new record now
+    except (OptionError, OSError):
+        pass
 
 
 def _replace_atomically(real: Path, data: bytes, option: str, new_only: bool = False) -> None:
@@ -317,12 +361,10 @@ def _replace_atomically(real: Path, data: bytes, option: str, new_only: bool = F
 
 
 def check_table_folder(option: str, folder: str | Path, files: dict[str, str],
-                       inputs: list[str | Path | None]) -> dict[str, str]:
-    """Check that every file of ``files`` may be written into ``folder`` (see the module's rules);
-    returns the folder's record of the files this tool wrote there before."""
+                       inputs: list[str | Path | None]) -> None:
+    """Check that every file of ``files`` may be written into ``folder`` (see the module's rules)."""
     path = Path(folder)
     check_folder(option, str(folder))
-    manifest = _read_manifest(path, option)
     input_ids = {_identity(Path(s)) for s in inputs if s is not None} - {None}
     for name in files:
         existing = path / name
@@ -332,41 +374,41 @@ def check_table_folder(option: str, folder: str | Path, files: dict[str, str],
             continue
         if _identity(existing) in input_ids:
             raise OptionError(f"{option}: refusing to write '{shown(existing)}': it is an input file")
-        if manifest.get(name) != _checksum(existing.read_bytes()):
+        if not _written_here(existing, option):
             raise OptionError(f"{option}: '{shown(existing)}' exists and was not written by cfa-tool (or was changed since); "
                               f"choose an empty folder, or move that file")
-    return manifest
 
 
 def write_table_folder(option: str, folder: str | Path, files: dict[str, str], inputs: list[str | Path | None]) -> None:
     """Write ``files`` (name -> text) into ``folder``; nothing is written unless every file can be."""
     path = Path(folder)
-    manifest = check_table_folder(option, folder, files, inputs)
+    check_table_folder(option, folder, files, inputs)
     try:
         path.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
         raise OptionError(f"{option}: cannot create the folder '{shown(folder)}' ({exc.strerror or exc})") from None
+    written = {}
     for name, text in files.items():
         data = text.encode("utf-8")
         _replace_atomically(path / name, data, option)
-        manifest[name] = _checksum(data)
-    _replace_atomically(path / MANIFEST, json.dumps({"written by": _MANIFEST_MARK, "files": manifest}, indent=1,
-                                                     sort_keys=True).encode("utf-8"), option)
+        written[name] = _checksum(data)
+    _record(path, written, option)
 
 
 def _checksum(data: bytes) -> str:
     return hashlib.sha256(data).hexdigest()
 
 
-def _read_manifest(folder: Path, option: str) -> dict[str, str]:
-    record = folder / MANIFEST
+def _read_record(folder: Path, option: str) -> dict[str, str]:
+    """The folder's record of the files this tool wrote there (name -> checksum); empty when there is none."""
+    record = folder / RECORD if (folder / RECORD).exists() or not (folder / OLD_RECORD).exists() else folder / OLD_RECORD
     if not record.exists():
         return {}
     try:
         content = json.loads(record.read_text(encoding="utf-8"))
-        if content.get("written by") != _MANIFEST_MARK:
+        if content.get("written by") != _RECORD_MARK:
             raise ValueError
         return {str(k): str(v) for k, v in content["files"].items()}
     except (OSError, ValueError, AttributeError, KeyError, TypeError):
-        raise OptionError(f"{option}: '{shown(record)}' exists but is not this tool's record of the tables it wrote; "
+        raise OptionError(f"{option}: '{shown(record)}' exists but is not this tool's record of the files it wrote; "
                           f"choose another folder") from None

@@ -130,10 +130,34 @@ def test_workflows_for_continuous_items_refuse_ordinal_declarations(command, cor
 def test_json_to_a_symbolic_link_replaces_the_target_and_keeps_the_link(corpus, capsys):
     (corpus / "target.json").write_text("old")
     (corpus / "link.json").symlink_to("target.json")
-    code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "link.json"], capsys)
-    assert code == 0, err
-    assert (corpus / "link.json").is_symlink()
-    assert __import__("json").loads((corpus / "target.json").read_text())["converged"] is True
+    command = ["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "link.json"]
+    code, _, err = _run(command, capsys)  # the target is a file the tool did not write: left alone
+    assert code == 2 and "was not written by cfa-tool" in err
+    assert (corpus / "target.json").read_text() == "old"
+    (corpus / "target.json").unlink()
+    for _ in range(2):  # written through the link, then replaced: the tool wrote it
+        code, _, err = _run(command, capsys)
+        assert code == 0, err
+        assert (corpus / "link.json").is_symlink()
+        assert __import__("json").loads((corpus / "target.json").read_text())["converged"] is True
+
+
+def test_outputs_replace_only_files_the_tool_wrote_unchanged(corpus, capsys):
+    # a typo naming someone's file, a read-only report and a report edited by hand are never replaced; a
+    # report the tool wrote is replaced on the next run, and rows of data never are
+    (corpus / "notes.md").write_text("my notes")
+    command = ["fit", "models/good.cfa", "--data", "data/good.csv", "--markdown"]
+    code, _, err = _run(command + ["notes.md"], capsys)
+    assert code == 2 and "'notes.md' exists and was not written by cfa-tool" in err
+    assert (corpus / "notes.md").read_text() == "my notes"
+    for _ in range(2):
+        code, _, err = _run(command + ["report.md"], capsys)
+        assert code == 0, err
+    (corpus / "report.md").write_text((corpus / "report.md").read_text() + "\nmy edit\n")
+    code, _, err = _run(command + ["report.md"], capsys)
+    assert code == 2 and "or was changed since" in err and "my edit" in (corpus / "report.md").read_text()
+    code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--json", ".cfa-tool-files.json"], capsys)
+    assert code == 2 and "record of the files it wrote" in err
 
 
 def test_json_to_a_symbolic_link_to_the_data_is_refused(corpus, capsys):
