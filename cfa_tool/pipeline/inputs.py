@@ -302,15 +302,12 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     spec = with_ordinal_levels(spec, ordinal_items)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None:
-        if ordinal_items:
-            raise OptionError(f"ordinal items are not yet fitted with a sampling design, so the {design.names[0][0]} "
-                              f"column '{design.names[0][1]}' cannot apply; fit the items as continuous or leave out "
-                              f"the design")
         frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
         notes = list(notes) + design_notes
     if ordinal_items:
         with blas_threads_for(len(spec.observed_names)):
-            result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
+            result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator,
+                                  design)
         labels = tuple(g.label for g in result.groups) if group is not None else None
         summary = missing_summary(frame, spec.observed_names)  # the patterns and coverage, as for continuous items
         gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
@@ -429,7 +426,9 @@ def converged(result: FitResult) -> FitResult:
 
 
 def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: set[str], group: str | None,
-                 reference_group: str | None, fit_options, method: str) -> FitResult:
+                 reference_group: str | None, fit_options, method: str, design: DesignColumns | None = None) -> FitResult:
+    """The fit of ordinal items (beside continuous ones in one group), weighted and with design-based standard
+    errors and tests under a sampling ``design`` (its columns already checked)."""
     from cfa_tool.pipeline import ordinal as ordinal_fitting
 
     pairwise = check_ordinal_options(fit_options)
@@ -437,13 +436,20 @@ def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: se
         if reference_group is not None:
             raise OptionError("a reference group needs a group column")
         from cfa_tool.data.polychoric import ordinal_moments
+        from cfa_tool.inference.design import ordinal_design_covariance
 
         continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
-        moments = ordinal_moments(frame, spec.observed_names, source, continuous, pairwise=pairwise)
-        return ordinal_fitting.fit_ordinal(spec, moments, fit_options, method)
-    groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise)
-    result = ordinal_fitting.fit_ordinal_groups(spec, groups, fit_options, method, group)
-    return replace(result, warnings=tuple(notes) + result.warnings)
+        moments = ordinal_design_covariance(ordinal_moments(frame, spec.observed_names, source, continuous,
+                                                            pairwise=pairwise, design=design))
+        result = ordinal_fitting.fit_ordinal(spec, moments, fit_options, method)
+        groups = [(None, moments)]
+    else:
+        groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise, design)
+        result = ordinal_fitting.fit_ordinal_groups(spec, groups, fit_options, method, group)
+        result = replace(result, warnings=tuple(notes) + result.warnings)
+    if design is not None and result.converged:
+        result = with_design(result, design_summary(frame, design, [m for _, m in groups]))
+    return result
 
 
 def continuous_only(spec: Spec, command: str) -> Spec:
@@ -480,9 +486,11 @@ def check_ordinal_options(fit_options) -> bool:
 
 
 def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, reference_group: str | None,
-                   ordinal_items: set[str], pairwise: bool = False) -> tuple[list, list[str]]:
+                   ordinal_items: set[str], pairwise: bool = False,
+                   design: DesignColumns | None = None) -> tuple[list, list[str]]:
     """Per-group ordinal moments (every indicator must then be ordinal), with notes on rows left out:
-    the ordinal counterpart of :func:`moments_for`; ``pairwise`` keeps rows with gaps (pairwise present)."""
+    the ordinal counterpart of :func:`moments_for`; ``pairwise`` keeps rows with gaps (pairwise present);
+    under a sampling ``design`` weighted, with the design-based covariance."""
     continuous = sorted(x for x in spec.observed_names if x not in ordinal_items)
     if continuous:
         raise OptionError(f"with groups every indicator must be ordinal; '{continuous[0]}' is not (declare it with "
@@ -490,7 +498,10 @@ def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, ref
     _check_group_column(spec, group)
     from cfa_tool.data.groups import split_ordinal_moments
 
-    groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise)
+    from cfa_tool.inference.design import ordinal_design_covariance
+
+    groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise, design)
+    groups = [(label, ordinal_design_covariance(m)) for label, m in groups]
     return groups, _no_group_notes(no_group, group) + label_notes(frame, group)
 
 
