@@ -570,16 +570,23 @@ def make_options(options: dict) -> FitOptions:
 
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
           sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
-          reference_group: str | None = None) -> CheckResult:
+          reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
+          strata: str | None = None, weight_kind: str | None = None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
     are complete, how many have gaps (kept by default) and each item's
-    coverage."""
+    coverage.  A sampling design (``weights``, ``cluster``, ``strata``, ``weight_kind``, as for :func:`fit`) is
+    checked as the fit checks it and stated: the sum of the weights, Kish's effective sample size, the
+    clusters and strata, with the caution a fit would give about too few clusters."""
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
     read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep}
+    design = design_columns(weights, cluster, strata, weight_kind)
     if summary_source(data):
         refuse_row_options(f"'{data}'", group=group, **read_options)
+        if design is not None:
+            raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
+                              f"raw data")
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         spec = load_spec(model)
@@ -589,6 +596,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0,
                            {name: 1.0 for name in spec.observed_names}, None)
     spec, frame, source = read_inputs(model, data, **read_options)
+    notes: list[str] = []
+    if design is not None:
+        frame, notes = check_design(frame, design, spec.observed_names, group, source)
     ordinal_items = ordinal_items_of(spec, None)
     if ordinal_items:  # the same data checks as the fit (categories, empty cells in groups, duplicates)
         if group is not None:
@@ -599,9 +609,11 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
             ordinal_moments(frame, spec.observed_names, source,
                             frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
-    groups, _ = moments_for(spec, frame, source, group, reference_group, missing=options.missing)
+    groups, _ = moments_for(spec, frame, source, group, reference_group, missing=options.missing, design=design)
     labels = tuple(label for label, _ in groups) if group is not None else None
-    check_counting_rule(spec, build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION))
+    table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)
+    check_counting_rule(spec, table)
+    sample_design = design_summary(frame, design, [m for _, m in groups]) if design is not None else None
     answered = frame[list(spec.observed_names)].notna()
     if group is not None:
         answered = answered[frame[group].notna()]
@@ -609,5 +621,6 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     empty = int((~answered.any(axis=1)).sum())
     coverage = {name: float(v) for name, v in answered.mean(axis=0).items()} if len(answered) else {}
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - empty, empty, coverage,
-                       labels, bool(ordinal_items))
+                       labels, bool(ordinal_items), sample_design,
+                       sample_design.caution(table.n_free) if sample_design is not None else None, tuple(notes))
 

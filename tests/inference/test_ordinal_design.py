@@ -245,3 +245,63 @@ def test_cluster_robust_ordinal_intervals_cover_where_naive_ones_do_not():
             hits[name] += abs(est - true) <= 1.959964 * se
     assert 0.88 <= hits["cluster"] / replications <= 1.0
     assert hits["naive"] / replications < 0.85
+
+
+# -- the design in check and scores; refused where it cannot apply ---------------------------------------------------
+
+def test_check_states_the_design_as_the_fit_uses_it(survey):
+    found = cfa_tool.check(ONE_FACTOR, survey.assign(w=survey["w"].where(survey.index != 0, 0.0)), weights="w",
+                           cluster="unit", strata="stratum")
+    fitted = cfa_tool.fit(ONE_FACTOR, survey.loc[survey.index != 0], weights="w", cluster="unit", strata="stratum")
+    assert found.design.to_dict() == fitted.design.to_dict()
+    text = found.summary()
+    assert "Design: sampling weights (w; sum" in text and "1 rows have weight 0 in 'w' and were left out" in text
+    assert found.to_dict()["design"]["clusters"] == 80 and found.caution is None
+    few = cfa_tool.check(ONE_FACTOR, survey.assign(unit=survey["unit"] // 8), cluster="unit")
+    assert few.summary().startswith("Caution: Only 10 clusters in 'unit'")
+
+
+def test_scores_fit_under_the_design_and_score_every_row(survey, tmp_path):
+    # The parameters are the design's (those of the weighted fit); a row's score follows from its answers and
+    # those parameters, so scoring the weighted fit's parameters with a plain scoring of the same rows gives the
+    # same numbers: checked by giving the fit JSON of the weighted fit to --from-fit on continuous items.
+    import json
+
+    data = survey.assign(x2=survey["x"] * 0.8 + survey["b"], x3=survey["x"] * 0.5 + survey["c"],
+                         x4=survey["x"] * 0.6 + survey["d"])
+    model = "factor f: x, x2, x3, x4\n"
+    path = tmp_path / "survey.csv"
+    data.to_csv(path, index=False)
+    (tmp_path / "m.cfa").write_text(model)
+    weighted = cfa_tool.scores(model, data, weights="w", cluster="unit")
+    plain = cfa_tool.scores(model, data)
+    assert weighted.fit.design is not None and weighted.rows == len(data)
+    assert not np.allclose(weighted.table.iloc[:, 0], plain.table.iloc[:, 0])
+    fit_json = tmp_path / "fit.json"
+    assert main(["fit", str(tmp_path / "m.cfa"), "--data", str(path), "--weights", "w", "--cluster", "unit",
+                 "--json", str(fit_json)]) == 0
+    again = tmp_path / "again.csv"
+    assert main(["scores", str(tmp_path / "m.cfa"), "--data", str(path), "--from-fit", str(fit_json),
+                 "--output", str(again)]) == 0
+    np.testing.assert_allclose(pd.read_csv(again).iloc[:, 0], weighted.table.iloc[:, 0], rtol=1e-6)
+    assert json.loads(fit_json.read_text())["design"]["weights"] == "w"
+    ordinal = cfa_tool.scores(ONE_FACTOR, survey, ordinal="all", weights="freq", weight_kind="frequency")
+    repeated = survey.loc[survey.index.repeat(survey["freq"])].reset_index(drop=True)
+    plain_ordinal = cfa_tool.scores(ONE_FACTOR, repeated, ordinal="all")
+    first = repeated.drop_duplicates(subset=ITEMS).index  # same answers, same score
+    by_answers = dict(zip(map(tuple, repeated.loc[first, ITEMS].to_numpy()), plain_ordinal.table.iloc[first, 0]))
+    for answers, score in zip(map(tuple, survey[ITEMS].to_numpy()), ordinal.table.iloc[:, 0]):
+        assert score == pytest.approx(by_answers[answers], rel=1e-6)
+
+
+def test_scores_from_an_earlier_fit_refuse_a_design(survey, tmp_path, capsys):
+    path = tmp_path / "survey.csv"
+    survey.to_csv(path, index=False)
+    (tmp_path / "m.cfa").write_text(ONE_FACTOR)
+    fit_json = tmp_path / "fit.json"
+    assert main(["fit", str(tmp_path / "m.cfa"), "--data", str(path), "--json", str(fit_json)]) == 0
+    capsys.readouterr()
+    assert main(["scores", str(tmp_path / "m.cfa"), "--data", str(path), "--from-fit", str(fit_json), "--weights", "w",
+                 "--output", str(tmp_path / "s.csv")]) == 2
+    err = capsys.readouterr().err
+    assert "--weights is about fitting the model" in err and err.count("\n") == 1
