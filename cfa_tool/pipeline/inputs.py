@@ -218,7 +218,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     or of frequency weights with ``weight_kind='frequency'`` (each row counted as often as its weight);
     ``cluster``: a column naming each row's cluster (cluster-robust standard errors and test);
     ``strata``: a column naming each row's stratum (clusters nested in strata).  Sampling weights and
-    clusters make the standard errors sandwich ones and the chi-square a scaled one.
+    clusters make the standard errors sandwich ones and the chi-square a scaled one.  With ordinal items
+    the thresholds and correlations are weighted (pseudo-maximum likelihood) and their asymptotic
+    covariance is the design-based one of the rows' influence functions, summed by cluster within strata.
     ``options``: ``information``, ``test``, ``missing``, ``mi_threshold``, ``mi_top``, ``max_iterations``;
     ``diagnostics=False`` and ``modification_indices=False`` skip the extras (normality tests,
     reliability, residual and case diagnostics; score tests) in loops that only need estimates,
