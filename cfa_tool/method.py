@@ -156,11 +156,12 @@ class FitMethod:
     def sentence(self, groups: int = 1) -> str:
         """The estimation in one line, as the report's status line and the JSON's ``estimator`` give it."""
         if self.ordinal:
+            errors = "cluster-robust standard errors" if self.clustered else "robust standard errors"
             if self.thresholds:
                 return (f"{self.weighting.label} least squares on thresholds and polychoric correlations (ordinal items, "
-                        f"{groups} groups), robust standard errors")
+                        f"{groups} groups), {errors}")
             extra = ", with polyserial correlations for continuous items" if self.items is Items.MIXED else ""
-            return f"{self.weighting.label} least squares on polychoric correlations (ordinal items{extra}), robust standard errors"
+            return f"{self.weighting.label} least squares on polychoric correlations (ordinal items{extra}), {errors}"
         text = self.estimator.label
         if self.test is FitTest.SATORRA_BENTLER:
             text += (" with Satorra-Bentler scaled test and "

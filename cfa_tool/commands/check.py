@@ -15,6 +15,8 @@ def add_parser(sub) -> None:
     check.add_argument("--group-column", dest="group", metavar="COLUMN", help="column whose values name the groups")
     O.add_renamed(check, "--group", O.GROUP_NOW)
     O.add_data_options(check)
+    O.add_design_options(check, "checked and stated as the fit would use it: the sum of the weights, Kish's effective "
+                                "sample size, the clusters and strata, and a caution when clusters are too few")
     add_report_options(check)
 
 
@@ -23,5 +25,5 @@ def run(args: argparse.Namespace) -> int:
 
     check_output(args, inputs_of(args))
     found = check(Path(args.model), args.data, group=args.group, sheet=args.sheet, missing_codes=args.missing_codes,
-                  keep=args.keep)
+                  keep=args.keep, **O.design_args(args))
     return emit(args, found)

@@ -10,8 +10,11 @@ from cfa_tool.commands.common import check_output, emit, inputs_of, progress
 
 
 def add_parser(sub) -> None:
-    O.add_resampling_parser(sub, "cutoffs", "fit-index cutoffs simulated for this model and sample size", 200,
-                            "samples per population")
+    p = O.add_resampling_parser(sub, "cutoffs", "fit-index cutoffs simulated for this model and sample size", 200,
+                                "samples per population")
+    O.refuse_design_options(p, "cutoffs are simulated from samples of independent, equally weighted rows, and a "
+                               "sampling design (weights, clusters, strata) cannot be simulated from the data alone; "
+                               "run cutoffs without it and compare with the fit's design-based statistics with care")
 
 
 def run(args: argparse.Namespace) -> int:

@@ -82,17 +82,36 @@ def add_resampling_parser(sub, name: str, help_text: str, replications: int, wha
     return p
 
 
-def add_design_options(p: argparse.ArgumentParser) -> None:
-    """The sampling design: weights, clusters and strata (cfa_tool.data.sample_design)."""
+def add_design_options(p: argparse.ArgumentParser, what: str = "") -> None:
+    """The sampling design: weights, clusters and strata (cfa_tool.data.sample_design); ``what`` says what the
+    command does with it (in the help of --weights)."""
     from cfa_tool.method import WeightKind
 
     p.add_argument("--weights", metavar="COLUMN", help="column of sampling weights (rescaled to sum to the rows; "
-                   "sandwich standard errors and a scaled test), or of frequency weights with --weight-kind frequency")
+                   "sandwich standard errors and a scaled test), or of frequency weights with --weight-kind frequency"
+                   + (f"; with --cluster and --strata, {what}" if what else ""))
     p.add_argument("--weight-kind", choices=WeightKind.words(), default=None,
                    help="'sampling' (default) or 'frequency': each row counts as often as its weight says")
     p.add_argument("--cluster", metavar="COLUMN", help="column naming each row's cluster (school, clinic, firm): "
                    "cluster-robust standard errors and test")
     p.add_argument("--strata", metavar="COLUMN", help="column naming each row's stratum (clusters nested in strata)")
+
+
+class CannotApply(argparse.Action):
+    """An option that cannot apply to a command: a one-line error that says why (never silently ignored)."""
+
+    def __init__(self, option_strings, dest, why: str = "", **kwargs):
+        self.why = why
+        super().__init__(option_strings, dest, help=argparse.SUPPRESS, **kwargs)
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        parser.error(f"{option_string} cannot apply: {self.why}")
+
+
+def refuse_design_options(p: argparse.ArgumentParser, why: str) -> None:
+    """The sampling design's options on a command to which a design cannot apply: each an error saying ``why``."""
+    for option in ("--weights", "--weight-kind", "--cluster", "--strata"):
+        p.add_argument(option, action=CannotApply, dest=f"_refused_{option.strip('-').replace('-', '_')}", why=why)
 
 
 def design_args(args: argparse.Namespace) -> dict:

@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from cfa_tool.commands import options as O
 from cfa_tool.commands.common import add_report_options, check_output, emit, inputs_of
 
 
@@ -15,6 +16,10 @@ def add_parser(sub) -> None:
     rep.add_argument("--validation", metavar="FILE", help="new data the estimates are checked in")
     rep.add_argument("--data", metavar="FILE", help="one data file to split at random into two halves")
     rep.add_argument("--seed", type=int, default=1, help="seed of the random split (default 1)")
+    O.refuse_design_options(rep, "replicate's tight test and cross-validation index compare normal-theory "
+                                 "discrepancies of independent, equally weighted rows (and the random halves would "
+                                 "split clusters), so they would mislead under a sampling design; fit each sample "
+                                 "with 'fit' and its design options instead")
     add_report_options(rep)
 
 

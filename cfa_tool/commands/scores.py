@@ -26,6 +26,9 @@ def add_parser(sub) -> None:
     O.add_group_options(p, required=False)
     O.add_ordinal_options(p)
     O.add_incomplete_rows_option(p, " (in the fit; every row is scored from the items it answered either way)")
+    O.add_design_options(p, "the design the model is fitted under (weighted estimates, sandwich standard errors); a "
+                            "row's score follows from its answers and the fitted parameters alone, so every row is "
+                            "scored whatever its weight; not with --from-fit, whose fit had its own design")
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
     p.add_argument("--from-fit", metavar="RESULT.json",
                    help="score the data with the parameters of an earlier fit of MODEL (its 'fit --json' result) instead "
@@ -36,7 +39,8 @@ def add_parser(sub) -> None:
 #: options about fitting, which cannot apply when the parameters come from an earlier fit
 FITTING_OPTIONS = (("group", "--group-column"), ("reference_group", "--reference-group"), ("ordinal", "--ordinal"),
                    ("ordinal_estimator", "--ordinal-estimator"), ("missing", "--incomplete-rows"),
-                   ("max_iterations", "--max-iterations"))
+                   ("max_iterations", "--max-iterations"), ("weights", "--weights"), ("weight_kind", "--weight-kind"),
+                   ("cluster", "--cluster"), ("strata", "--strata"))
 
 
 def _methods(text: str | None):
@@ -77,7 +81,7 @@ def run(args: argparse.Namespace) -> int:
                         id_column=args.id, group=args.group, reference_group=args.reference_group, sheet=args.sheet,
                         missing_codes=args.missing_codes, keep=args.keep, ordinal=O.ordinal_arg(args.ordinal),
                         ordinal_estimator=args.ordinal_estimator, missing=args.missing,
-                        max_iterations=args.max_iterations)
+                        max_iterations=args.max_iterations, **O.design_args(args))
     rows = ("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")
     emit_report(args, result, [args.model, args.data, args.from_fit], first=[rows])
     if result.low_determinacy:

@@ -16,6 +16,13 @@ gets a polyserial correlation (two-step, Olsson, Drasgow & Dorans 1982), whose
 influence function is corrected in the same way for the thresholds and for the
 continuous item's mean and standard deviation; two continuous items get the
 Pearson correlation, IF = z_i z_j - r (z_i^2 + z_j^2) / 2.
+
+Under a sampling design every statistic is a pseudo-maximum-likelihood estimate: each row's
+contribution to the proportions, the contingency tables, the moments and the likelihoods is
+multiplied by its weight (Muthen & Satorra 1995; Asparouhov 2005), the expected derivatives
+in the influence functions are weighted means, and the rows' influence functions are kept
+(``OrdinalMoments.influence``) for the design-based covariance of
+:func:`cfa_tool.inference.design.ordinal_design_covariance` (per-cluster sums within strata).
 """
 
 from __future__ import annotations
@@ -29,7 +36,9 @@ from scipy import optimize
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.data.moments import numeric_columns
+from cfa_tool.data.sample_design import DesignColumns, RowDesign, row_design
 from cfa_tool.errors import DataError, printable
+from cfa_tool.method import WeightKind
 from cfa_tool.numerics.bivariate import bivariate_cdf, bivariate_pdf
 
 MAX_CATEGORIES = 15
@@ -54,6 +63,10 @@ class OrdinalMoments:
     joint_gamma: np.ndarray | None = field(repr=False, default=None)
     #: with pairwise present rows: rows answering both items (diagonal: each item); None with listwise deletion
     pair_counts: np.ndarray | None = field(repr=False, default=None)
+    #: under a sampling design: each analysed row's weight, cluster and stratum, and the rows' joint influence
+    #: functions (the covariance then follows from them by the design, and is None until it does)
+    design: RowDesign | None = field(repr=False, default=None)
+    influence: np.ndarray | None = field(repr=False, default=None)
 
     @property
     def pairwise(self) -> bool:
@@ -62,7 +75,7 @@ class OrdinalMoments:
     @property
     def gaps(self) -> bool:
         """Whether some analysed row missed an answer (pairwise present rows with gaps)."""
-        return self.pair_counts is not None and bool((self.pair_counts < self.n_obs).any())
+        return self.pair_counts is not None and bool((self.pair_counts < len(self.codes)).any())
 
     @property
     def stacked_thresholds(self) -> np.ndarray:
@@ -104,6 +117,19 @@ def _threshold_derivative(ti, tj, rho) -> np.ndarray:
     return out
 
 
+def _average(x: np.ndarray, w: np.ndarray | None) -> float:
+    """The mean of ``x``, weighted by ``w`` when weights are given."""
+    return float(np.mean(x)) if w is None else float(w @ x / w.sum())
+
+
+def _moments(x: np.ndarray, w: np.ndarray | None) -> tuple[float, float]:
+    """Mean and standard deviation (divisor N, or the sum of the weights) of ``x``."""
+    if w is None:
+        return float(x.mean()), float(x.std())
+    mean = _average(x, w)
+    return mean, float(np.sqrt(_average((x - mean) ** 2, w)))
+
+
 def polychoric_pair(table: np.ndarray, ti: np.ndarray, tj: np.ndarray) -> float:
     def negative(rho):
         return -float(np.sum(table * np.log(cell_probabilities(ti, tj, rho))))
@@ -127,46 +153,48 @@ def _polyserial_scores(z: np.ndarray, codes: np.ndarray, tau: np.ndarray, rho: f
     return (dist.norm_pdf(a) * d(up, a) - dist.norm_pdf(b) * d(low, b)) / prob
 
 
-def polyserial_pair(z: np.ndarray, codes: np.ndarray, tau: np.ndarray) -> float:
+def polyserial_pair(z: np.ndarray, codes: np.ndarray, tau: np.ndarray, w: np.ndarray | None = None) -> float:
+    """The polyserial correlation maximising the (``w``-weighted) likelihood of the ordinal item given ``z``."""
     t = _extended(tau)
 
     def negative(rho):
         s = np.sqrt(1.0 - rho**2)
         prob = dist.norm_cdf((t[codes + 1] - rho * z) / s) - dist.norm_cdf((t[codes] - rho * z) / s)
-        return -float(np.sum(np.log(np.clip(prob, 1e-300, None))))
+        log = np.log(np.clip(prob, 1e-300, None))
+        return -float(np.sum(log) if w is None else w @ log)
 
     return float(optimize.minimize_scalar(negative, bounds=(-0.999, 0.999), method="bounded", options={"xatol": 1e-10}).x)
 
 
-def _polyserial_parts(x: np.ndarray, codes: np.ndarray, tau: np.ndarray,
-                      rho: float) -> tuple[np.ndarray, np.ndarray, float, np.ndarray]:
+def _polyserial_parts(x: np.ndarray, codes: np.ndarray, tau: np.ndarray, rho: float,
+                      w: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray, float, np.ndarray]:
     """The parts of a polyserial correlation's influence function on the rows ``x``, ``codes`` it was
     estimated from: the case's score s, the correction m for the continuous item's mean and SD (estimated on
     the same rows), the expected information I_rr and the cross-information I_rt with each threshold, so that
     IF = (s - IF(tau) I_rt - m) / I_rr.  The expected derivatives of the score are averaged over the rows by
-    central differences."""
-    mean, sd = x.mean(), x.std()
+    central differences (weighted means under a sampling design, weights ``w``)."""
+    mean, sd = _moments(x, w)
     z = (x - mean) / sd
     score = _polyserial_scores(z, codes, tau, rho)
     h = 1e-5
-    info_rr = -np.mean(_polyserial_scores(z, codes, tau, rho + h) - _polyserial_scores(z, codes, tau, rho - h)) / (2 * h)
+    info_rr = -_average(_polyserial_scores(z, codes, tau, rho + h) - _polyserial_scores(z, codes, tau, rho - h), w) / (2 * h)
     info_rt = np.zeros(len(tau))
     for c in range(len(tau)):
         up, down = tau.copy(), tau.copy()
         up[c] += h
         down[c] -= h
-        info_rt[c] = -np.mean(_polyserial_scores(z, codes, up, rho) - _polyserial_scores(z, codes, down, rho)) / (2 * h)
-    info_mu = -np.mean(_polyserial_scores((x - mean - h) / sd, codes, tau, rho)
-                       - _polyserial_scores((x - mean + h) / sd, codes, tau, rho)) / (2 * h)
-    info_sd = -np.mean(_polyserial_scores((x - mean) / (sd + h), codes, tau, rho)
-                       - _polyserial_scores((x - mean) / (sd - h), codes, tau, rho)) / (2 * h)
+        info_rt[c] = -_average(_polyserial_scores(z, codes, up, rho) - _polyserial_scores(z, codes, down, rho), w) / (2 * h)
+    info_mu = -_average(_polyserial_scores((x - mean - h) / sd, codes, tau, rho)
+                       - _polyserial_scores((x - mean + h) / sd, codes, tau, rho), w) / (2 * h)
+    info_sd = -_average(_polyserial_scores((x - mean) / (sd + h), codes, tau, rho)
+                       - _polyserial_scores((x - mean) / (sd - h), codes, tau, rho), w) / (2 * h)
     moments_correction = info_mu * (x - mean) + info_sd * ((x - mean) ** 2 - sd**2) / (2 * sd)
     return score, moments_correction, float(info_rr), info_rt
 
 
 def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                     continuous: frozenset[str] = frozenset(), levels: dict[str, tuple[float, ...]] | None = None,
-                    where: str = "", pairwise: bool = False) -> OrdinalMoments:
+                    where: str = "", pairwise: bool = False, design: DesignColumns | None = None) -> OrdinalMoments:
     """Thresholds and correlations of ordinal items (and of any ``continuous`` items beside them).
 
     ``levels``: the categories every group must use (with groups, so that thresholds
@@ -178,13 +206,27 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
     equations (each statistic's casewise score is zero on rows that cannot inform it; the M-estimation
     sandwich, e.g. Stefanski & Boos 2002), which for a statistic estimated on N_s of the N rows scales
     its casewise influence by N / N_s; without gaps it is the complete-data one exactly.  Otherwise
-    only the complete rows are used (listwise deletion)."""
+    only the complete rows are used (listwise deletion).
+
+    ``design``: the sampling design's columns (checked by :func:`cfa_tool.data.sample_design.check_design`):
+    every statistic is weighted (pseudo-maximum likelihood, Muthen & Satorra 1995), N is the sum of the
+    weights with frequency weights, and the rows' influence functions are returned for the design-based
+    covariance instead of the covariance (a statistic on a part of the rows scales its influence by the
+    weight of all rows over the weight of that part)."""
     values = numeric_columns(frame, names, source)
     answered = ~np.isnan(values)
     keep = answered.any(axis=1) if pairwise else answered.all(axis=1)
     data = values[keep]
     present = answered[keep]
     n, p = data.shape
+    rows_design = row_design(frame, design, keep) if design is not None else None
+    w = rows_design.weights if rows_design is not None else None
+    total = n if w is None else float(w.sum())
+
+    def weight_of(rows: np.ndarray) -> float:
+        """The weight of the rows ``rows`` (a mask): their number without a design."""
+        return int(rows.sum()) if w is None else float(w[rows].sum())
+
     if n <= p:
         kind = "with an answer" if pairwise else "complete"
         raise DataError(f"{source}{where}: {n} {kind} {'row' if n == 1 else 'rows'} for {p} items; more rows are needed")
@@ -198,11 +240,11 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                         f"collect more answers")
     codes = np.where(present, 0, -1)  # -1: no answer
     categories, thresholds, threshold_if = [], [], []
-    if present.all():  # the complete-data formulas, so that a fit without gaps is the listwise one to the last digit
+    if present.all() and w is None:  # the complete-data formulas, so that a fit without gaps is the listwise one to the last digit
         means, sds = data.mean(axis=0), data.std(axis=0)
     else:
-        means = np.array([data[present[:, j], j].mean() for j in range(p)])
-        sds = np.array([data[present[:, j], j].std() for j in range(p)])
+        means, sds = np.array([_moments(data[present[:, j], j], None if w is None else w[present[:, j]])
+                               for j in range(p)]).T
     z_all = (data - means) / np.where(sds > 0, sds, 1.0)
 
     def standardized(column: int, rows: np.ndarray, other: int) -> np.ndarray:
@@ -210,17 +252,18 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         if rows.all():
             return z_all[:, column]
         x = data[rows, column]
-        if x.std() == 0:
+        mean, sd = _moments(x, None if w is None else w[rows])
+        if sd == 0:
             raise DataError(f"{source}{where}: column '{printable(names[column])}' has the same value in every row that "
                             f"also answered '{printable(names[other])}', so their correlation cannot be estimated")
-        return (x - x.mean()) / x.std()
+        return (x - mean) / sd
 
     for j, name in enumerate(names):
         rows_j = present[:, j]
         x = data[rows_j, j]
-        n_j = len(x)
+        n_j = weight_of(rows_j)
         if name in continuous:
-            if x.std() == 0:
+            if sds[j] == 0:
                 raise DataError(f"{source}: column '{name}' has the same value in every row used")
             categories.append(())
             thresholds.append(np.zeros(0))
@@ -243,34 +286,36 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                             f"{MAX_CATEGORIES} treat it as continuous")
         levels_j = item_levels
         codes[rows_j, j] = np.searchsorted(levels_j, x)
-        counts = np.bincount(codes[rows_j, j], minlength=len(levels_j))
+        counts = np.bincount(codes[rows_j, j], weights=None if w is None else w[rows_j], minlength=len(levels_j))
         cumulative = np.cumsum(counts)[:-1] / n_j
         tau = dist.norm_ppf(cumulative)
         categories.append(tuple(float(v) for v in levels_j))
         thresholds.append(tau)
         below = (codes[rows_j, j][:, None] <= np.arange(len(tau))[None, :]).astype(float)
         item_if = np.zeros((n, len(tau)))
-        item_if[rows_j] = (n / n_j) * (below - cumulative[None, :]) / dist.norm_pdf(tau)[None, :]
+        item_if[rows_j] = (total / n_j) * (below - cumulative[None, :]) / dist.norm_pdf(tau)[None, :]
         threshold_if.append(item_if)
     rows_i, cols_j = np.tril_indices(p, -1)
     R = np.eye(p)
     influence = np.zeros((n, len(rows_i)))
     for k, (i, j) in enumerate(zip(rows_i, cols_j)):
         both = present[:, i] & present[:, j]
-        scale = n / int(pair_counts[i, j])  # 1 without gaps
+        scale = total / weight_of(both)  # 1 without gaps
+        w_both = None if w is None else w[both]
         ci, cj = names[i] in continuous, names[j] in continuous
         if ci and cj:
             zi, zj = standardized(i, both, j), standardized(j, both, i)
-            r = float(np.mean(zi * zj))
+            r = _average(zi * zj, w_both)
             R[i, j] = R[j, i] = r
             influence[both, k] = scale * (zi * zj - r * (zi**2 + zj**2) / 2)
             continue
         if ci or cj:
             c, o = (i, j) if ci else (j, i)
             x = data[both, c]
-            rho = polyserial_pair(standardized(c, both, o), codes[both, o], thresholds[o])
+            rho = polyserial_pair(standardized(c, both, o), codes[both, o], thresholds[o], w_both)
             R[i, j] = R[j, i] = rho
-            score_o, moments_correction, info_rr, info_rt = _polyserial_parts(x, codes[both, o], thresholds[o], rho)
+            score_o, moments_correction, info_rr, info_rt = _polyserial_parts(x, codes[both, o], thresholds[o], rho,
+                                                                                w_both)
             score, correction = np.zeros(n), np.zeros(n)
             score[both] = scale * score_o
             for c_ in range(len(info_rt)):
@@ -280,7 +325,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             continue
         ci_codes, cj_codes = codes[both, i], codes[both, j]
         table = np.zeros((len(categories[i]), len(categories[j])))
-        np.add.at(table, (ci_codes, cj_codes), 1.0)
+        np.add.at(table, (ci_codes, cj_codes), 1.0 if w is None else w_both)
         rho = polychoric_pair(table, thresholds[i], thresholds[j])
         R[i, j] = R[j, i] = rho
         pi = cell_probabilities(thresholds[i], thresholds[j], rho)
@@ -295,9 +340,10 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             correction += threshold_if[item] @ info_rt
         influence[:, k] = (score - correction) / info_rr
     joint = np.hstack(threshold_if + [influence])
-    joint_gamma = joint.T @ joint / n
-    k = joint.shape[1] - influence.shape[1]
-    gamma = joint_gamma[k:, k:]
+    joint_gamma = gamma = None  # under a design, from the influence functions by the design (inference layer)
+    if rows_design is None:
+        joint_gamma = joint.T @ joint / n
+        gamma = joint_gamma[len(joint_gamma) - influence.shape[1]:, len(joint_gamma) - influence.shape[1]:]
     near = np.abs(R - np.eye(p)) > NEAR_DUPLICATE
     if near.any():
         i, j = np.argwhere(np.tril(near, -1))[0]
@@ -310,9 +356,11 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                         f"some items may be near duplicates or some categories nearly empty"
                         + ("; with missing answers, correlations from different rows need not fit together "
                            "(--incomplete-rows listwise uses the complete rows only)" if gaps else ""))
-    return OrdinalMoments(tuple(names), n, len(frame), len(frame) - n, source, tuple(categories), tuple(thresholds),
+    n_obs = int(round(total)) if design is not None and design.kind is WeightKind.FREQUENCY else n
+    return OrdinalMoments(tuple(names), n_obs, len(frame), len(frame) - n, source, tuple(categories), tuple(thresholds),
                           R, gamma, codes, means, sds, frozenset(continuous), joint_gamma,
-                          pair_counts if pairwise else None)
+                          pair_counts if pairwise else None, rows_design,
+                          joint if rows_design is not None else None)
 
 
 NEAR_DUPLICATE = 0.995  # a correlation this close to 1 in size means two items answer alike (the search stops at .999)

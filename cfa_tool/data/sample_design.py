@@ -76,8 +76,9 @@ class SampleDesign:
                 "cluster": c.cluster, "clusters": self.clusters, "strata_column": c.strata, "strata": self.strata,
                 "rows": self.rows, "sandwich": c.robust}
 
-    def sentence(self, full_information: bool = False) -> str:
-        """The design in the words of a methods paragraph."""
+    def sentence(self, full_information: bool = False, ordinal: bool = False) -> str:
+        """The design in the words of a methods paragraph (``ordinal``: of a fit to thresholds and polychoric
+        correlations)."""
         c = self.columns
         parts = []
         if c.weights is not None:
@@ -87,6 +88,8 @@ class SampleDesign:
                 parts.append(f"sampling weights from the column {c.weights} (sum {self.sum_of_weights:.6g}, rescaled to "
                              f"sum to the {self.rows} rows; Kish's effective sample size {self.effective_n:.1f}), by "
                              + ("the weighted full-information likelihood (Asparouhov 2005)" if full_information else
+                                "weighted thresholds and polychoric correlations (pseudo-maximum likelihood; Muthen & "
+                                "Satorra 1995; Asparouhov 2005)" if ordinal else
                                 "pseudo-maximum likelihood on weighted moments (Muthen & Satorra 1995)"))
         if c.cluster is not None:
             parts.append(f"{self.clusters} clusters defined by {c.cluster}")
@@ -262,8 +265,9 @@ def with_row_design(moments, design: RowDesign):
 
 
 def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list) -> SampleDesign:
-    """The design as the report states it, over the rows analysed in every group."""
-    rows = sum(len(m.rows) for m in moments)
+    """The design as the report states it, over the rows analysed in every group (``moments``: each group's
+    SampleMoments or OrdinalMoments, carrying its RowDesign)."""
+    rows = sum(len(m.design.weights) for m in moments)
     total = square = None
     if columns.weights is not None:
         total = sum(m.design.given[0] for m in moments)

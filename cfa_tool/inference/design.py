@@ -64,3 +64,18 @@ def moment_covariance(rows: np.ndarray, design, with_means: bool) -> np.ndarray:
     D = np.hstack(parts)
     D = D - w @ D / w.sum()
     return design_meat(D, design)
+
+
+def ordinal_design_covariance(moments):
+    """``moments`` (OrdinalMoments estimated under a sampling design, carrying their rows' influence
+    functions) with the asymptotic covariance of the thresholds and correlations under that design:
+    Gamma = the design-based meat of the rows' influence functions (Muthen & Satorra 1995; Asparouhov
+    2005; the linearization estimator over clusters within strata, Binder 1983).  Moments without a
+    design are returned as they are."""
+    from dataclasses import replace
+
+    if moments.influence is None:
+        return moments
+    joint = design_meat(moments.influence, moments.design)
+    k = len(joint) - len(moments.pairs[0])
+    return replace(moments, joint_gamma=joint, gamma=joint[k:, k:], influence=None)

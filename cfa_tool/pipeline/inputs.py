@@ -218,7 +218,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     or of frequency weights with ``weight_kind='frequency'`` (each row counted as often as its weight);
     ``cluster``: a column naming each row's cluster (cluster-robust standard errors and test);
     ``strata``: a column naming each row's stratum (clusters nested in strata).  Sampling weights and
-    clusters make the standard errors sandwich ones and the chi-square a scaled one.
+    clusters make the standard errors sandwich ones and the chi-square a scaled one.  With ordinal items
+    the thresholds and correlations are weighted (pseudo-maximum likelihood) and their asymptotic
+    covariance is the design-based one of the rows' influence functions, summed by cluster within strata.
     ``options``: ``information``, ``test``, ``missing``, ``mi_threshold``, ``mi_top``, ``max_iterations``;
     ``diagnostics=False`` and ``modification_indices=False`` skip the extras (normality tests,
     reliability, residual and case diagnostics; score tests) in loops that only need estimates,
@@ -302,15 +304,12 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     spec = with_ordinal_levels(spec, ordinal_items)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None:
-        if ordinal_items:
-            raise OptionError(f"ordinal items are not yet fitted with a sampling design, so the {design.names[0][0]} "
-                              f"column '{design.names[0][1]}' cannot apply; fit the items as continuous or leave out "
-                              f"the design")
         frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
         notes = list(notes) + design_notes
     if ordinal_items:
         with blas_threads_for(len(spec.observed_names)):
-            result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator)
+            result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator,
+                                  design)
         labels = tuple(g.label for g in result.groups) if group is not None else None
         summary = missing_summary(frame, spec.observed_names)  # the patterns and coverage, as for continuous items
         gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
@@ -429,7 +428,9 @@ def converged(result: FitResult) -> FitResult:
 
 
 def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: set[str], group: str | None,
-                 reference_group: str | None, fit_options, method: str) -> FitResult:
+                 reference_group: str | None, fit_options, method: str, design: DesignColumns | None = None) -> FitResult:
+    """The fit of ordinal items (beside continuous ones in one group), weighted and with design-based standard
+    errors and tests under a sampling ``design`` (its columns already checked)."""
     from cfa_tool.pipeline import ordinal as ordinal_fitting
 
     pairwise = check_ordinal_options(fit_options)
@@ -437,13 +438,20 @@ def _fit_ordinal(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: se
         if reference_group is not None:
             raise OptionError("a reference group needs a group column")
         from cfa_tool.data.polychoric import ordinal_moments
+        from cfa_tool.inference.design import ordinal_design_covariance
 
         continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
-        moments = ordinal_moments(frame, spec.observed_names, source, continuous, pairwise=pairwise)
-        return ordinal_fitting.fit_ordinal(spec, moments, fit_options, method)
-    groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise)
-    result = ordinal_fitting.fit_ordinal_groups(spec, groups, fit_options, method, group)
-    return replace(result, warnings=tuple(notes) + result.warnings)
+        moments = ordinal_design_covariance(ordinal_moments(frame, spec.observed_names, source, continuous,
+                                                            pairwise=pairwise, design=design))
+        result = ordinal_fitting.fit_ordinal(spec, moments, fit_options, method)
+        groups = [(None, moments)]
+    else:
+        groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise, design)
+        result = ordinal_fitting.fit_ordinal_groups(spec, groups, fit_options, method, group)
+        result = replace(result, warnings=tuple(notes) + result.warnings)
+    if design is not None and result.converged:
+        result = with_design(result, design_summary(frame, design, [m for _, m in groups]))
+    return result
 
 
 def continuous_only(spec: Spec, command: str) -> Spec:
@@ -480,9 +488,11 @@ def check_ordinal_options(fit_options) -> bool:
 
 
 def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, reference_group: str | None,
-                   ordinal_items: set[str], pairwise: bool = False) -> tuple[list, list[str]]:
+                   ordinal_items: set[str], pairwise: bool = False,
+                   design: DesignColumns | None = None) -> tuple[list, list[str]]:
     """Per-group ordinal moments (every indicator must then be ordinal), with notes on rows left out:
-    the ordinal counterpart of :func:`moments_for`; ``pairwise`` keeps rows with gaps (pairwise present)."""
+    the ordinal counterpart of :func:`moments_for`; ``pairwise`` keeps rows with gaps (pairwise present);
+    under a sampling ``design`` weighted, with the design-based covariance."""
     continuous = sorted(x for x in spec.observed_names if x not in ordinal_items)
     if continuous:
         raise OptionError(f"with groups every indicator must be ordinal; '{continuous[0]}' is not (declare it with "
@@ -490,7 +500,10 @@ def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, ref
     _check_group_column(spec, group)
     from cfa_tool.data.groups import split_ordinal_moments
 
-    groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise)
+    from cfa_tool.inference.design import ordinal_design_covariance
+
+    groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise, design)
+    groups = [(label, ordinal_design_covariance(m)) for label, m in groups]
     return groups, _no_group_notes(no_group, group) + label_notes(frame, group)
 
 
@@ -559,16 +572,23 @@ def make_options(options: dict) -> FitOptions:
 
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
           sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
-          reference_group: str | None = None) -> CheckResult:
+          reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
+          strata: str | None = None, weight_kind: str | None = None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
     are complete, how many have gaps (kept by default) and each item's
-    coverage."""
+    coverage.  A sampling design (``weights``, ``cluster``, ``strata``, ``weight_kind``, as for :func:`fit`) is
+    checked as the fit checks it and stated: the sum of the weights, Kish's effective sample size, the
+    clusters and strata, with the caution a fit would give about too few clusters."""
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
     read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep}
+    design = design_columns(weights, cluster, strata, weight_kind)
     if summary_source(data):
         refuse_row_options(f"'{data}'", group=group, **read_options)
+        if design is not None:
+            raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
+                              f"raw data")
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         spec = load_spec(model)
@@ -578,6 +598,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0,
                            {name: 1.0 for name in spec.observed_names}, None)
     spec, frame, source = read_inputs(model, data, **read_options)
+    notes: list[str] = []
+    if design is not None:
+        frame, notes = check_design(frame, design, spec.observed_names, group, source)
     ordinal_items = ordinal_items_of(spec, None)
     if ordinal_items:  # the same data checks as the fit (categories, empty cells in groups, duplicates)
         if group is not None:
@@ -588,9 +611,11 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
             ordinal_moments(frame, spec.observed_names, source,
                             frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
-    groups, _ = moments_for(spec, frame, source, group, reference_group, missing=options.missing)
+    groups, _ = moments_for(spec, frame, source, group, reference_group, missing=options.missing, design=design)
     labels = tuple(label for label, _ in groups) if group is not None else None
-    check_counting_rule(spec, build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION))
+    table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)
+    check_counting_rule(spec, table)
+    sample_design = design_summary(frame, design, [m for _, m in groups]) if design is not None else None
     answered = frame[list(spec.observed_names)].notna()
     if group is not None:
         answered = answered[frame[group].notna()]
@@ -598,5 +623,6 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     empty = int((~answered.any(axis=1)).sum())
     coverage = {name: float(v) for name, v in answered.mean(axis=0).items()} if len(answered) else {}
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - empty, empty, coverage,
-                       labels, bool(ordinal_items))
+                       labels, bool(ordinal_items), sample_design,
+                       sample_design.caution(table.n_free) if sample_design is not None else None, tuple(notes))
 

@@ -129,7 +129,7 @@ def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
         if not moments.rows_dropped:
             return []
         return [f"{moments.rows_dropped} of {moments.rows_read} rows{where} had a missing answer on a model variable and "
-                f"were left out (listwise deletion); {moments.n_obs} rows were analysed"]
+                f"were left out (listwise deletion); {len(moments.codes)} rows were analysed"]
     out = []
     if moments.rows_dropped:
         out.append(f"{moments.rows_dropped} of {moments.rows_read} rows{where} answered no model variable and were left out")
@@ -139,7 +139,7 @@ def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
         complete = int((moments.codes >= 0).all(axis=1).sum())
         out.append(f"missing answers{where}: every answer is used (pairwise present rows): each item's thresholds come "
                    f"from the rows that answered it, each correlation from the rows that answered both items, from "
-                   f"{low[2]} rows ({low[0]}, {low[1]}) to {high[2]} ({high[0]}, {high[1]}) of {moments.n_obs}; the "
+                   f"{low[2]} rows ({low[0]}, {low[1]}) to {high[2]} ({high[0]}, {high[1]}) of {len(moments.codes)}; the "
                    f"standard errors and tests allow for this; --incomplete-rows listwise would use only the "
                    f"{complete} complete rows")
     return out

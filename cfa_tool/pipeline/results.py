@@ -74,10 +74,14 @@ class CheckResult(Presentable):
     coverage: dict  # share of rows answering each model variable
     groups: tuple[str, ...] | None
     ordinal: bool = False  # ordinal items: rows with gaps are used through pairwise present rows
+    design: object = None  # the sampling design (data.sample_design.SampleDesign) when one is given
+    caution: str | None = None  # too few clusters for cluster-robust standard errors (the fit's Problem)
+    notes: tuple[str, ...] = ()  # rows the design leaves out (weight 0)
 
     def summary(self) -> str:
         spec = self.spec
-        lines = [f"The model is valid: {len(spec.factors)} factor{'s' if len(spec.factors) != 1 else ''}, "
+        lines = [f"Caution: {self.caution}"] if self.caution else []
+        lines += [f"The model is valid: {len(spec.factors)} factor{'s' if len(spec.factors) != 1 else ''}, "
                  f"{len(spec.observed_names)} indicators, all found in {self.source}."]
         if self.groups:
             lines.append(f"Groups: {len(self.groups)} ({', '.join(self.groups)}).")
@@ -89,13 +93,19 @@ class CheckResult(Presentable):
             rest = "; every other item 100%" if len(low) < len(self.coverage) else ""
             lines.append("Coverage (share of rows answering): " + ", ".join(f"{k} {_percent_below_all(v)}" for v, k in low[:10])
                          + (f", and {len(low) - 10} more below 100%" if len(low) > 10 else "") + rest + ".")
+        if self.design is not None:
+            lines.append(self.design.status()[0].upper() + self.design.status()[1:] + "; "
+                         + ("sandwich standard errors and a scaled test in the fit" if self.design.columns.robust else
+                            "each row counted as often as its weight in the fit") + ".")
+            lines.extend(f"Note: {note}." for note in self.notes)
         return "\n".join(lines)
 
     def to_dict(self) -> dict:
         return {"valid": True, "source": self.source, "factors": list(self.spec.factor_names),
                 "indicators": list(self.spec.observed_names), "rows": self.rows, "complete_rows": self.complete,
                 "rows_with_gaps": self.with_gaps, "rows_without_answers": self.empty, "coverage": dict(self.coverage),
-                "groups": list(self.groups) if self.groups else None}
+                "groups": list(self.groups) if self.groups else None,
+                "design": self.design.to_dict() if self.design is not None else None, "caution": self.caution}
 
 
 @dataclass(frozen=True)

@@ -291,7 +291,7 @@ def methods_paragraph(result) -> str:
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
     design = getattr(result, "design", None)
     if design is not None:
-        parts.append(design.sentence(result.method.full_information))
+        parts.append(design.sentence(result.method.full_information, result.method.ordinal))
     inadmissible = not result.admissible
     if inadmissible:
         serious = [p for p in result.problems if p.kind.inadmissible]

@@ -36,7 +36,16 @@ def header_lines(result) -> list[str]:
             f"Scores ({methods}) of {result.rows} rows, one per row of the data in the file's order; columns: "
             f"{first}one per factor" + ("" if not result.standard_errors else
                                         " with its posterior standard deviation" if ScoreMethod.EXPECTED_A_POSTERIORI
-                                        in result.methods else " with its standard error")]
+                                        in result.methods else " with its standard error")] + _design_line(fit)
+
+
+def _design_line(fit) -> list[str]:
+    """The sampling design the parameters were fitted under, and that it does not change a row's score."""
+    design = getattr(fit, "design", None)
+    if design is None:
+        return []
+    return [f"Fitted under the sampling {design.status()}; a row's score follows from its own answers and the "
+            f"parameters alone, so its weight does not change it"]
 
 
 def caution_lines(result) -> list[str]:

@@ -81,7 +81,7 @@ def _comparison_cells(r, robust_rows: bool) -> tuple[list[str], list]:
 def _design_lines(result) -> tuple[str, ...]:
     """The sampling design of a fit in one line (none without a design)."""
     design = getattr(result, "design", None)
-    return (design.sentence(result.method.full_information),) if design is not None else ()
+    return (design.sentence(result.method.full_information, result.method.ordinal),) if design is not None else ()
 
 
 def comparison_report(comparison) -> Report:

@@ -92,12 +92,12 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         raise OptionError("comparing needs at least two models")
     fit_options = replace(make_options(options), diagnostics=False)
     design = design_columns(weights, cluster, strata, weight_kind)
-    if design is not None:
-        fit_options = design_test(fit_options, design)
     specs = [load_spec(m) for m in models]
     ordinal_items = set().union(*(ordinal_items_of(spec, ordinal) for spec in specs))
     specs = [with_ordinal_levels(spec, ordinal_items) for spec in specs]
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
+    if design is not None and not ordinal_items:  # ordinal items always get sandwich errors and adjusted tests
+        fit_options = design_test(fit_options, design)
     names = _unique_names(specs)
     if summary_source(data):
         refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group)
@@ -128,15 +128,12 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     else:
         complete = frame.dropna(subset=used)
     if design is not None:
-        if ordinal_items:
-            raise OptionError(f"ordinal items are not yet fitted with a sampling design, so the {design.names[0][0]} "
-                              f"column '{design.names[0][1]}' cannot apply")
         used_columns = set(used)
         complete, _ = check_design(complete, design, tuple(used_columns), group, source)
     dropped = len(loaded.frame) - len(complete)
     if ordinal_items:
         return _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items,
-                                ordinal_estimator, dropped)
+                                ordinal_estimator, dropped, design)
     results = []
     data_groups = []
     for spec, name in zip(specs, names):
@@ -152,11 +149,11 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
 
 
 def _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items, method,
-                     dropped) -> Comparison:
+                     dropped, design=None) -> Comparison:
     from cfa_tool.workflows.ordinal_compare import fit_ordinal_models, ordinal_difference_test
 
     estimations, results = fit_ordinal_models(specs, complete, source, group, reference_group, fit_options,
-                                              ordinal_items, method)
+                                              ordinal_items, method, design)
     def test_pair(a: int, b: int) -> tuple[list[DifferenceTest], str]:
         test, reason = ordinal_difference_test(estimations[a], estimations[b], results[a], results[b], names[a], names[b])
         return ([test] if test is not None else []), reason

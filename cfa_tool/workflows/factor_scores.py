@@ -17,6 +17,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.errors import EstimationError, OptionError, printable
 from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.pipeline.results import FitResult, clean
@@ -175,7 +176,9 @@ class ScoreResult(Presentable):
 
 def scores(model, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
            group: str | None = None, reference_group: str | None = None, sheet: str | None = None,
-           missing_codes=(), keep=(), ordinal=None, ordinal_estimator: str | None = None, **options) -> ScoreResult:
+           missing_codes=(), keep=(), ordinal=None, ordinal_estimator: str | None = None, weights: str | None = None,
+           cluster: str | None = None, strata: str | None = None, weight_kind: str | None = None,
+           **options) -> ScoreResult:
     """Fit ``model`` to ``data`` (as :func:`cfa_tool.fit` does, same options) and score every row.
 
     ``methods``: 'regression' (Thurstone 1935; the default), 'bartlett' (Bartlett 1937),
@@ -185,6 +188,10 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     factor given the row's answered items; for regression scores the posterior standard deviation).
     ``id_column``: a column written first to name each row (never analysed); without it, the file's
     row-name column (a first column without a name in the header) is written first when there is one.
+    ``weights``, ``cluster``, ``strata``, ``weight_kind``: the sampling design the model is fitted under (as by
+    :func:`cfa_tool.fit`); the scoring model (intercepts, thresholds) comes from the same weighted rows, while
+    each row's score follows from its own answers and the parameters alone, so every row is scored, whatever
+    its weight.
 
     Raises :class:`~cfa_tool.errors.EstimationError` when the fitted solution is not admissible: such
     a solution's scores would mean nothing.
@@ -212,7 +219,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     if ordinal_items and methods is not None:
         raise OptionError("ordinal items are scored by their posterior mean (with its standard deviation), so a "
                           "scoring method cannot be chosen; remove that option")
-    result = api._fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator)
+    design = design_columns(weights, cluster, strata, weight_kind)
+    result = api._fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
     if not result.admissible:
         problem = next((p for p in result.problems if p.kind.inadmissible), None)
         why = problem.phrase() if problem is not None else result.message
@@ -220,9 +228,11 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                               f"run 'fit' to see its problems")
     if ordinal_items:
         chosen = (ScoreMethod.EXPECTED_A_POSTERIORI,)
-        models, labels = _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, result)
+        models, labels = _ordinal_models(spec, _fitted_rows(frame, design, spec, group, source), source, ordinal_items,
+                                         group, reference_group, result, design)
     else:
-        models, labels = _linear_models(spec, frame, source, group, reference_group, fit_options, result)
+        models, labels = _linear_models(spec, _fitted_rows(frame, design, spec, group, source), source, group,
+                                        reference_group, fit_options, result, design)
     factors = models[0].base.factors if ordinal_items else models[0].factors
     items = models[0].base.items if ordinal_items else models[0].items
     rows = _numeric(frame, items, source)
@@ -524,13 +534,18 @@ class _Fitted:
     theta: np.ndarray
 
 
-def _linear_models(spec, frame, source, group, reference_group, fit_options, result):
+def _fitted_rows(frame, design, spec, group, source):
+    """The rows the fit used under a sampling design (rows of weight 0 left out), for the scoring model."""
+    return check_design(frame, design, spec.observed_names, group, source)[0] if design is not None else frame
+
+
+def _linear_models(spec, frame, source, group, reference_group, fit_options, result, design=None):
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.pipeline.continuous import model_structure
     from cfa_tool.scoring.model import score_inputs
 
     options, _ = api.choose_missing_handling(fit_options, frame, spec.observed_names, group)
-    groups, _ = api.moments_for(spec, frame, source, group, reference_group, options.missing)
+    groups, _ = api.moments_for(spec, frame, source, group, reference_group, options.missing, design)
     labels = tuple(label for label, _ in groups) if group is not None else None
     table, model = model_structure(spec, labels, options.missing == "full-information")
     if table.n_free != len(result.theta):
@@ -538,7 +553,7 @@ def _linear_models(spec, frame, source, group, reference_group, fit_options, res
     return score_inputs(_Fitted(table, model, result.theta), groups), [label for label, _ in groups]
 
 
-def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, result):
+def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, result, design=None):
     from cfa_tool.method import MissingData
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.scoring.model import one_group_ordinal_inputs, ordinal_score_inputs
@@ -553,13 +568,13 @@ def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, 
 
         table = build_parameter_table(ordinal_spec(spec)[0])
         continuous = frozenset(x for x in table.observed if x not in ordinal_items)
-        moments = ordinal_moments(frame, table.observed, source, continuous, pairwise=pairwise)
+        moments = ordinal_moments(frame, table.observed, source, continuous, pairwise=pairwise, design=design)
         mats = StructuredModel(table).matrices(result.theta)
         return [one_group_ordinal_inputs(mats, table.observed, table.latent, moments)], [None]
     from cfa_tool.model.implied import StructuredModel
     from cfa_tool.model.parameters import build_parameter_table
 
-    groups, _ = api.ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise)
+    groups, _ = api.ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise, design)
     labels = tuple(label for label, _ in groups)
     n_thresholds = {x: len(t) for x, t in zip(spec.observed_names, groups[0][1].thresholds)}
     table = build_parameter_table(spec, labels, ordinal=n_thresholds)

@@ -229,19 +229,18 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     ordinal_items = ordinal_items_of(spec, ordinal)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None:
-        if ordinal_items:
-            raise OptionError(f"ordinal items are not yet fitted with a sampling design, so the {design.names[0][0]} "
-                              f"column '{design.names[0][1]}' cannot apply")
         frame, _ = check_design(frame, design, spec.observed_names, group, source)
-        fit_options = design_test(fit_options, design)
+        if not ordinal_items:  # ordinal items always get sandwich errors and adjusted tests
+            fit_options = design_test(fit_options, design)
     if ordinal_items:
         pairwise = check_ordinal_options(fit_options)
         if rule is not DecisionRule.DIFFERENCE_TEST:
             raise OptionError("with ordinal items the fit indices of each step come from its own adjusted statistic and "
                               "cannot be compared across steps; judge the steps by the difference tests "
                               "(--decide-by difference-test)")
-        groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise)
-        ladder = OrdinalLadder(ordinal_estimator)
+        groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise, design)
+        ladder = OrdinalLadder(ordinal_estimator,
+                               design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
     else:
         # rows with gaps are kept (full-information ML), as 'fit' keeps them, unless listwise is asked for
         fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
@@ -462,8 +461,9 @@ class OrdinalLadder:
 
     levels = ORDINAL_LEVELS
 
-    def __init__(self, method: str):
+    def __init__(self, method: str, design=None):
         self.method = method
+        self.design = design  # data.sample_design.SampleDesign, stated in every step's result
 
     def estimate(self, spec, groups, options, start):
         from cfa_tool.pipeline.ordinal import estimate_ordinal_groups
@@ -473,7 +473,8 @@ class OrdinalLadder:
     def assess(self, spec, groups, est, options, group_column):
         from cfa_tool.pipeline.ordinal import assess_ordinal_groups
 
-        return assess_ordinal_groups(spec, groups, est, options, group_column, self.method, modification=False)
+        result = assess_ordinal_groups(spec, groups, est, options, group_column, self.method, modification=False)
+        return with_design(result, self.design) if self.design is not None and result.converged else result
 
     def difference(self, est, result, previous, level, previous_level) -> DifferenceTest:
         from cfa_tool.pipeline.ordinal import ordinal_difference

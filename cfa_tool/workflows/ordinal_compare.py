@@ -25,9 +25,13 @@ from cfa_tool.workflows.nesting import NESTING_TOLERANCE, DifferenceTest
 
 
 
-def fit_ordinal_models(specs, complete, source, group, reference_group, fit_options, ordinal_items, method):
-    """(estimations, results) of every model on the same complete rows."""
-    from cfa_tool.pipeline.inputs import check_ordinal_options, ordinal_groups
+def fit_ordinal_models(specs, complete, source, group, reference_group, fit_options, ordinal_items, method,
+                       design=None):
+    """(estimations, results) of every model on the same complete rows (weighted, with design-based standard
+    errors and tests, under a sampling ``design``: its DesignColumns, already checked)."""
+    from cfa_tool.data.sample_design import design_summary
+    from cfa_tool.inference.design import ordinal_design_covariance
+    from cfa_tool.pipeline.inputs import check_ordinal_options, ordinal_groups, with_design
 
     check_ordinal_options(fit_options)
     items = set(specs[0].observed_names)
@@ -37,9 +41,10 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
     estimations, results = [], []
     for spec in specs:
         if group is None:
-            groups = [("all", ordinal_moments(complete, spec.observed_names, source, frozenset(items - ordinal_items)))]
+            groups = [("all", ordinal_design_covariance(ordinal_moments(complete, spec.observed_names, source,
+                                                                        frozenset(items - ordinal_items), design=design)))]
         else:
-            groups, _ = ordinal_groups(spec, complete, source, group, reference_group, ordinal_items)
+            groups, _ = ordinal_groups(spec, complete, source, group, reference_group, ordinal_items, design=design)
         with estimation_of(f"model {spec.title or spec.source}"):
             est = estimate_ordinal_groups(spec, groups, fit_options, method)
             result = assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False)
@@ -48,6 +53,8 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
             # 'fit' of one group estimates the thresholds in a first step and does not count them: count alike
             thresholds = len({par.terms[0][0] for par in est.table.parameters if par.kind == "threshold" and par.free})
             result = replace(result, fit=replace(result.fit, n_free_parameters=result.fit.n_free_parameters - thresholds))
+        if design is not None and result.converged:
+            result = with_design(result, design_summary(complete, design, [m for _, m in groups]))
         results.append(result)
     return estimations, results
 

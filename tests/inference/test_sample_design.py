@@ -245,7 +245,6 @@ def design_files(tmp_path, hs_data):
     (["--weights", "nowhere"], "there is no weights column 'nowhere'"),
     (["--cluster", "unit_gap"], "column 'unit_gap', data row 3: no cluster given"),
     (["--weight-kind", "frequency"], "no weights column"),
-    (["--weights", "w", "--ordinal", "all"], "ordinal items are not yet fitted with a sampling design"),
     (["--weights", "w", "--standard-errors-from", "observed"], "information they come from (--standard-errors-from) cannot be chosen"),
     (["--weights", "w", "--cluster", "w"], "the column 'w' is named for two parts of the design"),
     (["--cluster", "unit", "--strata", "school"], "cluster '15' of column 'unit' lies in more than one stratum"),
