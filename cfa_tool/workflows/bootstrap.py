@@ -297,8 +297,8 @@ def _intervals(result: FitResult, values: np.ndarray, standardized: np.ndarray, 
                 continue
             if scale == "standardized" and row.kind == "threshold":  # on the latent response's scale already
                 continue
-            if not np.isfinite(draws_e).all() or np.ptp(draws_e) == 0:
-                continue
+            if not np.isfinite(draws_e).all() or np.ptp(draws_e) <= 1e-10 * max(1.0, float(np.abs(draws_e).max())):
+                continue  # a value fixed by the scaling (a standardized factor variance of 1, up to rounding)
             intervals.append(BootInterval(row.kind, row.variables, scale, point, _percentile(draws_e),
                                           _bca(draws_e, point, accel) if accel is not None else (np.nan, np.nan),
                                           float(np.std(draws_e, ddof=1))))

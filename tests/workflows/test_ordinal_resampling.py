@@ -23,6 +23,7 @@ from cfa_tool.workflows.cutoffs import cutoffs
 from cfa_tool.workflows.montecarlo import PowerCurve, monte_carlo_power
 from cfa_tool.workflows.simulation import population_from_spec, simulate
 from tests.commands.test_cli import run
+from tests.workflows.test_population_from_fit import simulated_from_fit
 
 TWO = "factor f: y1, y2, y3\nfactor g: y4, y5, y6\nordinal y1..y6\n"
 ONE = "factor f: y1, y2, y3, y4\nordinal y1..y4\n"
@@ -146,16 +147,8 @@ def test_power_simulation_from_an_ordinal_fit(ordinal_fit):
 
 
 def test_command_line(tmp_path, ordinal_fit):
-    model = tmp_path / "m.cfa"
-    model.write_text(TWO)
-    fitted = tmp_path / "fit.json"
-    fitted.write_text(json.dumps(ordinal_fit.to_dict()))
-    out = tmp_path / "sim.csv"
-    proc = run("simulate", str(model), "--n", "300", "--output", str(out), "--population-from", str(fitted),
-               "--json", str(tmp_path / "pop.json"))
-    assert proc.returncode == 0, proc.stderr
-    population = json.loads((tmp_path / "pop.json").read_text())["population"]
-    assert any(v["kind"] == "threshold" for v in population) and not any(v["default"] for v in population)
+    model, fitted, out, population = simulated_from_fit(tmp_path, TWO, ordinal_fit, 300)
+    assert any(v["kind"] == "threshold" for v in population)
     assert set(pd.read_csv(out)["y1"].unique()) <= {1, 2, 3, 4}
     proc = run("simulate", str(model), "--n", "50", "--output", str(tmp_path / "x.csv"), "--population-from",
                str(fitted), "--categories", "3")
