@@ -6,7 +6,6 @@ import argparse
 
 from cfa_tool.commands import options as O
 from cfa_tool.commands.common import check_output, emit, inputs_of, progress
-from cfa_tool.method import Weighting
 
 
 def add_parser(sub) -> None:
@@ -20,8 +19,7 @@ def add_parser(sub) -> None:
                     "this model (the file written by 'fit --json'); an ordinal fit gives its thresholds too")
     mc.add_argument("--categories", type=int, help="cut the ordinal items (all items without an 'ordinal' statement) "
                     "into this many equally likely categories and fit them as ordinal")
-    mc.add_argument("--ordinal-estimator", choices=Weighting.words(), default=None,
-                    help="least squares for ordinal items (default diagonally-weighted)")
+    O.add_ordinal_estimator_option(mc)
     O.add_run_options(mc)
 
 

@@ -359,7 +359,8 @@ class SimulatedData(Presentable):
 
     def to_dict(self) -> dict:
         return {"rows": len(self.frame), "variables": list(self.frame.columns), "seed": self.seed,
-                "categories": self.categories, "missing_share": self.missing, "population": self.population.values()}
+                "categories": self.categories, "ordinal_items": list(self.population.ordinal_items),
+                "missing_share": self.missing, "population": self.population.values()}
 
 
 def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing: float = 0.0,
