@@ -30,14 +30,14 @@ from scipy import linalg
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
-from cfa_tool.data.moments import sample_moments
+from cfa_tool.data.moments import numeric_columns, sample_moments
 from cfa_tool.errors import EstimationError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.method import WeightKind
-from cfa_tool.pipeline.inputs import (converged, design_test, moments_for, ordinal_items_of, read_inputs, with_design,
-                                      without_exploratory_blocks)
+from cfa_tool.pipeline.inputs import (_fit_rows, converged, design_test, moments_for, ordinal_items_of,
+                                      read_inputs_with_notes, with_design, without_exploratory_blocks)
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.parallel import run_tasks
@@ -335,7 +335,8 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     resamples draw whole clusters within strata.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and
     ``ordinal_estimator`` as for ``fit``) are fitted by least squares, and each resample is refitted so."""
     replications, seed = bootstrap_options(replications, seed, workers)
-    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    frame, source = loaded.frame, loaded.source
     without_exploratory_blocks(spec, "bootstrap", "it resamples the parameters, and a block's rotated loadings are "
                                                   "not among them")
     design = design_columns(weights, cluster, strata, weight_kind)
@@ -343,11 +344,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
         if design is not None:
             raise OptionError(f"ordinal items are not yet fitted with a sampling design, so the {design.names[0][0]} "
                               f"column '{design.names[0][1]}' cannot apply to their bootstrap; leave out the design")
-        from cfa_tool.data.moments import numeric_columns
-        from cfa_tool.data.readers import LoadedData
-        from cfa_tool.pipeline.inputs import _fit_rows
-
-        result = _fit_rows(spec, LoadedData(frame, source), [], None, None, FitOptions(), ordinal, ordinal_estimator)
+        result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
         return bootstrap_fit(result, spec, numeric_columns(frame, result.observed, source), replications, seed,
                              bollen_stine, False, workers, scheduler, progress)
     options = FitOptions()

@@ -27,7 +27,7 @@ from cfa_tool import options as check
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import OptionError
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
-from cfa_tool.pipeline.inputs import converged, ordinal_items_of, read_inputs
+from cfa_tool.pipeline.inputs import _fit_rows, converged, ordinal_items_of, read_inputs_with_notes
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
@@ -274,12 +274,10 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     fitted by least squares, the samples are simulated as ordinal answers and fitted so, and the cutoffs are of
     the adjusted indices the fit reports."""
     replications, seed = cutoff_options(replications, seed, workers)
-    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    frame, source = loaded.frame, loaded.source
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
-        from cfa_tool.data.readers import LoadedData
-        from cfa_tool.pipeline.inputs import _fit_rows
-
-        result = _fit_rows(spec, LoadedData(frame, source), [], None, None, FitOptions(), ordinal, ordinal_estimator)
+        result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
         return fit_cutoffs(spec, result, replications, seed, workers, scheduler, progress)
     result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
     return fit_cutoffs(spec, result, replications, seed, workers, scheduler, progress)
