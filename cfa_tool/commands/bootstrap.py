@@ -10,8 +10,10 @@ from cfa_tool.commands.common import check_output, emit, inputs_of, progress
 
 
 def add_parser(sub) -> None:
-    p = O.add_resampling_parser(sub, "bootstrap", "bootstrap intervals and the Bollen-Stine p-value of a fit", 1000,
+    p = O.add_resampling_parser(sub, "bootstrap", "bootstrap intervals and the Bollen-Stine p-value of a fit (ordinal "
+                                "items: percentile intervals, each resample refitted by least squares)", 1000,
                                 "number of resamples")
+    O.add_ordinal_options(p)
     O.add_design_options(p)
 
 
@@ -22,5 +24,6 @@ def run(args: argparse.Namespace) -> int:
     with progress(args.command) as advance:
         result = bootstrap(Path(args.model), args.data, args.replications, args.seed, workers=args.workers,
                            scheduler=args.scheduler, progress=advance, sheet=args.sheet,
-                           missing_codes=args.missing_codes, keep=args.keep, **O.design_args(args))
+                           missing_codes=args.missing_codes, keep=args.keep, ordinal=O.ordinal_arg(args.ordinal),
+                           ordinal_estimator=args.ordinal_estimator, **O.design_args(args))
     return emit(args, result)

@@ -10,8 +10,10 @@ from cfa_tool.commands.common import check_output, emit, inputs_of, progress
 
 
 def add_parser(sub) -> None:
-    p = O.add_resampling_parser(sub, "cutoffs", "fit-index cutoffs simulated for this model and sample size", 200,
+    p = O.add_resampling_parser(sub, "cutoffs", "fit-index cutoffs simulated for this model and sample size (ordinal "
+                                "items: simulated as ordinal answers, cutoffs of the adjusted indices)", 200,
                                 "samples per population")
+    O.add_ordinal_options(p)
     O.refuse_design_options(p, "cutoffs are simulated from samples of independent, equally weighted rows, and a "
                                "sampling design (weights, clusters, strata) cannot be simulated from the data alone; "
                                "run cutoffs without it and compare with the fit's design-based statistics with care")
@@ -23,5 +25,6 @@ def run(args: argparse.Namespace) -> int:
     check_output(args, inputs_of(args))
     with progress(args.command) as advance:
         result = cutoffs(Path(args.model), args.data, args.replications, args.seed, args.workers, args.scheduler,
-                         advance, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep)
+                         advance, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
+                         ordinal=O.ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
     return emit(args, result)

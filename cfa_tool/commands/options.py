@@ -138,6 +138,10 @@ def add_incomplete_rows_option(p: argparse.ArgumentParser, where: str = "") -> N
 def add_ordinal_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--ordinal", metavar="ITEMS",
                    help="'all' or comma-separated items to treat as ordinal (thresholds and polychoric correlations)")
+    add_ordinal_estimator_option(p)
+
+
+def add_ordinal_estimator_option(p: argparse.ArgumentParser) -> None:
     p.add_argument("--ordinal-estimator", choices=Weighting.words(), default=None,
                    help="least squares for ordinal items (default diagonally-weighted)")
 

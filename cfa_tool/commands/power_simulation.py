@@ -16,7 +16,10 @@ def add_parser(sub) -> None:
     mc.add_argument("--replications", type=int, default=500, help="number of data sets (default 500)")
     mc.add_argument("--alpha", type=float, default=0.05, help="significance level (default .05)")
     mc.add_argument("--population-from", metavar="RESULT", help="take the population values from an earlier fit of "
-                    "this model (the file written by 'fit --json')")
+                    "this model (the file written by 'fit --json'); an ordinal fit gives its thresholds too")
+    mc.add_argument("--categories", type=int, help="cut the ordinal items (all items without an 'ordinal' statement) "
+                    "into this many equally likely categories and fit them as ordinal")
+    O.add_ordinal_estimator_option(mc)
     O.add_run_options(mc)
 
 
@@ -27,5 +30,6 @@ def run(args: argparse.Namespace) -> int:
     check_output(args, inputs_of(args))
     with progress(args.command) as advance:
         result = monte_carlo_power(read_model_file(args.model), args.n, args.replications, args.seed, args.alpha,
-                                   args.workers, args.scheduler, advance, args.population_from)
+                                   args.workers, args.scheduler, advance, args.population_from, args.categories,
+                                   args.ordinal_estimator)
     return emit(args, result)

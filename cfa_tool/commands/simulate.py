@@ -16,7 +16,7 @@ def add_parser(sub) -> None:
     sim.add_argument("--categories", type=int, help="make ordinal items with this many categories")
     sim.add_argument("--missing", type=float, default=0.0, help="share of answers removed completely at random")
     sim.add_argument("--population-from", metavar="RESULT", help="take the population values from an earlier fit of "
-                     "this model (the file written by 'fit --json')")
+                     "this model (the file written by 'fit --json'); an ordinal fit gives its thresholds too")
     add_report_options(sim)
 
 

@@ -166,6 +166,15 @@ def _first_step_thresholds(moments, order: list[int]) -> tuple[EstimateRow, ...]
     return tuple(rows)
 
 
+def unit_variance_matrices(mats):
+    """A one-group ordinal model's matrices with each latent response's residual variance 1 - its common variance,
+    so that every latent response has variance 1 (what ``ordinal_spec`` fixes at 1 while estimating)."""
+    p = mats.T.shape[0]
+    T = mats.T.copy()
+    T[np.diag_indices(p)] = 1.0 - np.diag(mats.implied_covariance() - mats.T)
+    return dc_replace(mats, T=T)
+
+
 def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weighting.DIAGONAL) -> FitResult:
     """Least squares on polychoric correlations, with robust standard errors and adjusted tests."""
     method = _check_method(method)
@@ -202,11 +211,8 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations)
     theta = opt.theta
     n = moments.n_obs
-    mats = model.matrices(theta)
-    common = np.diag(mats.implied_covariance() - mats.T)
-    T_final = mats.T.copy()
-    T_final[np.diag_indices(p)] = 1.0 - common
-    final = dc_replace(mats, T=T_final)
+    final = unit_variance_matrices(model.matrices(theta))
+    T_final = final.T
     values = model.entry_values(theta)
     codes, rows, cols = table.entry_arrays()
     for e, par in enumerate(table.parameters):

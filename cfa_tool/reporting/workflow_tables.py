@@ -324,10 +324,22 @@ def replication_report(replications) -> Report:
 
 SCALE_WORDS = {"standardized": "std.", "unstandardized": "unstd."}  # short words for a narrow column
 
+ORDINAL_BOOTSTRAP = ("Ordinal items: each resample gets its own thresholds and polychoric correlations and is refitted "
+                     "by {estimator}. Only the parameters are bootstrapped, by percentile intervals: BCa's acceleration "
+                     "and the Bollen-Stine bootstrap of the test are built for continuous rows and have no counterpart "
+                     "for ordinal answers, so the test of fit remains the fit's adjusted one.")
+
+
 def bootstrap_report(boot) -> Report:
     result = boot.fit
+    ordinal = result.method.ordinal
+    not_converged = boot.replications - boot.converged - boot.failed
     lines = [f"{boot.replications} resamples of {result.n_obs} rows (seed {boot.seed}); {boot.converged} converged, "
-             f"{boot.replications - boot.converged} did not and are left out of the intervals."]
+             f"{not_converged} did not" + (f" and {boot.failed} could not be analysed (an item lost an answer category, "
+                                           f"or the correlations were not positive definite)" if boot.failed else "")
+             + "; those are left out of the intervals."]
+    if ordinal:
+        lines.append(ORDINAL_BOOTSTRAP.format(estimator=result.method.weighting.phrase))
     if _design_lines(result):
         lines += [*_design_lines(result), "Resamples draw whole clusters (each row its own cluster without them) within "
                                           "strata, and keep the rows' weights."]
@@ -340,16 +352,18 @@ def bootstrap_report(boot) -> Report:
     rows = [[f"{i.kind.replace('_', ' ')} {', '.join(i.variables)}", SCALE_WORDS.get(i.scale, i.scale),
              shown(i.estimate, i.scale),
              num(i.bootstrap_se), f"[{shown(i.percentile[0], i.scale)}, {shown(i.percentile[1], i.scale)}]",
-             f"[{shown(i.bca[0], i.scale)}, {shown(i.bca[1], i.scale)}]"] for i in boot.intervals]
-    values = [[i.kind, ", ".join(i.variables), i.scale, i.estimate, i.bootstrap_se, *i.percentile, *i.bca]
-              for i in boot.intervals]
+             *([] if ordinal else [f"[{shown(i.bca[0], i.scale)}, {shown(i.bca[1], i.scale)}]"])] for i in boot.intervals]
+    values = [[i.kind, ", ".join(i.variables), i.scale, i.estimate, i.bootstrap_se, *i.percentile,
+               *([] if ordinal else i.bca)] for i in boot.intervals]
+    kinds = "percentile intervals" if ordinal else "percentile and bias-corrected and accelerated (BCa; Efron 1987) intervals"
     table = _table("bootstrap_intervals", "Bootstrap intervals (95%)",
                    [("Parameter", "l"), ("Scale", "l"), ("Estimate", "r"), ("Bootstrap SE", "r"), ("Percentile", "r"),
-                    ("BCa", "r")], rows,
-                   "Scale: std., standardized (every variable with variance 1); unstd., in the model's units. Percentile "
-                   "and bias-corrected and accelerated (BCa; Efron 1987) intervals from the converged resamples.",
+                    *([] if ordinal else [("BCa", "r")])], rows,
+                   "Scale: std., standardized (every variable with variance 1); unstd., in the model's units"
+                   + ("; thresholds are on the latent response's scale (variance 1)" if ordinal else "")
+                   + f". {kinds[0].upper()}{kinds[1:]} from the converged resamples.",
                    values=(["Kind", "Variables", "Scale", "Estimate", "Bootstrap SE", "Percentile lower",
-                            "Percentile upper", "BCa lower", "BCa upper"], values))
+                            "Percentile upper", *([] if ordinal else ["BCa lower", "BCa upper"])], values))
     return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines), (table,),
                   (), (HIGH_STAKES_NOTE,))
 
@@ -385,6 +399,14 @@ def cutoffs_report(cut) -> Report:
                    values=(["Index", "Level", "Cutoff", "This model", "Reading"], values))
     lines = (f"{cut.replications} samples of N = {cut.n_obs} from the fitted model and from the model with "
              f"{cut.misspecification} left out (seed {cut.seed}).",)
+    if result.method.ordinal:
+        lines += (f"Ordinal items: each sample's latent responses are cut at the fitted thresholds, and the sample is "
+                  f"fitted by {result.method.weighting.phrase} on its own thresholds and polychoric correlations. CFI "
+                  f"and RMSEA, of this model and of every sample, come from the {cut.statistic} statistic; SRMR from "
+                  f"the polychoric correlations.",)
+        if cut.correct_rejected is not None:
+            lines += (f"That adjusted test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
+                      f"{cut.converged_correct} samples drawn from it (nominal 5%).",)
     return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", _fit_notice(result), lines,
                   (table,), tuple(notes), ("These cutoffs hold for this model, sample size and kind of misspecification "
                                            "only; they are guides, not laws.", HIGH_STAKES_NOTE))
@@ -414,11 +436,21 @@ def _percent(share: float) -> str:
     return "" if share != share else f"{100 * share:+.1f}"
 
 
+def _ordinal_power_lines(result) -> list[str]:
+    """What a power simulation with ordinal items did, and how often its adjusted test rejected the true model."""
+    if not result.ordinal:
+        return []
+    return [f"Ordinal items: latent responses cut at the population thresholds; each data set fitted by "
+            f"{result.ordinal} on its thresholds and polychoric correlations, with robust standard errors.",
+            f"The adjusted (scale-shifted) test rejected the true model at alpha {unit(result.alpha, 2)} in "
+            f"{100 * result.model_rejected:.1f}% of the converged replications (nominal {100 * result.alpha:g}%)."]
+
+
 def montecarlo_report(result) -> Report:
     if hasattr(result, "results"):  # a power curve: several sample sizes
         return power_curve_report(result)
     lines = [f"{result.converged} of {result.replications} replications converged "
-             f"({100 * result.converged / result.replications:.1f}%)."]
+             f"({100 * result.converged / result.replications:.1f}%)."] + _ordinal_power_lines(result)
     if result.defaulted:
         lines.append("Population values not given in the model file took defaults: " + ", ".join(result.defaulted))
     # what decides the plan first: power, then whether intervals and estimates can be trusted at this N
@@ -441,6 +473,10 @@ def power_curve_report(curve) -> Report:
     """Power per parameter (rows) and sample size (columns), with each size's convergence."""
     first = curve.results[0]
     lines = ["Converged: " + ", ".join(f"{r.converged} of {r.replications} at N = {r.n_obs}" for r in curve.results) + "."]
+    if first.ordinal:
+        lines += [_ordinal_power_lines(first)[0], "The adjusted test rejected the true model at alpha "
+                  f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {r.n_obs}"
+                                                           for r in curve.results) + " of the converged replications."]
     if first.defaulted:
         lines.append("Population values not given in the model file took defaults: " + ", ".join(first.defaulted))
     rows = [[p.label, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, p in enumerate(first.parameters)]
@@ -467,8 +503,11 @@ def population_report(simulated) -> Report:
         line = ("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances "
                 "1) and converted to the model's scaling; values from 'start' and 'fix' statements replace them.")
     frame = simulated.frame
+    cut = population.ordinal_items
     made = (f"{len(frame)} rows of {frame.shape[1]} variables (seed {simulated.seed})"
             + (f", ordinal with {simulated.categories} categories" if simulated.categories else "")
+            + (f", {len(cut)} ordinal items cut at the fitted thresholds (answers 1 to k)"
+               if cut and not simulated.categories else "")
             + (f", {100 * simulated.missing:g}% of answers removed completely at random" if simulated.missing else "") + ".")
     source = "earlier fit" if population.fitted_from is not None else "model file"
     entries = population.values()

@@ -30,14 +30,14 @@ from scipy import linalg
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
-from cfa_tool.data.moments import sample_moments
+from cfa_tool.data.moments import numeric_columns, sample_moments
 from cfa_tool.errors import EstimationError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.method import WeightKind
-from cfa_tool.pipeline.inputs import (continuous_only, converged, design_test, moments_for, read_inputs,
-                                      with_design, without_exploratory_blocks)
+from cfa_tool.pipeline.inputs import (_fit_rows, converged, design_test, moments_for, ordinal_items_of,
+                                      read_inputs_with_notes, with_design, without_exploratory_blocks)
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.parallel import run_tasks
@@ -69,12 +69,15 @@ class BootstrapResult(Presentable):
     intervals: tuple[BootInterval, ...]
     bollen_stine_p: float | None
     bollen_stine_converged: int | None
+    #: resamples whose answers could not be analysed (ordinal items: an answer category lost), apart from those
+    #: whose fit did not converge
+    failed: int = 0
 
     def to_dict(self) -> dict:
         """The fit and, under "result", the bootstrap."""
         return {"fit": self.fit.to_dict(), "result": clean({
             "replications": self.replications, "converged": self.converged,
-            "not_converged": self.replications - self.converged, "seed": self.seed,
+            "not_converged": self.replications - self.converged - self.failed, "failed": self.failed, "seed": self.seed,
             "bollen_stine_p_value": self.bollen_stine_p, "bollen_stine_converged": self.bollen_stine_converged,
             "intervals": [i.to_dict() for i in self.intervals]})}
 
@@ -204,15 +207,26 @@ def bollen_stine_rows(rows: np.ndarray, sigma: np.ndarray, weights: np.ndarray |
 
 
 def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int = 1000, seed: int = 1,
-                  bollen_stine: bool = True, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
+                  bollen_stine: bool | None = None, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
                   progress=None, design=None) -> BootstrapResult:
     """Bootstrap a converged single-group fit of complete ``rows`` (columns in the model's order); ``design``
-    the rows' data.sample_design.RowDesign, if any (clusters resampled, weights kept)."""
+    the rows' data.sample_design.RowDesign, if any (clusters resampled, weights kept).  ``bollen_stine``: the
+    Bollen-Stine p-value (None: where it applies, that is for continuous items).  A fit of ordinal items is
+    bootstrapped by refitting each resample with its own thresholds and polychoric correlations (``rows`` then
+    hold the answers, with gaps where the fit kept them), with percentile intervals only."""
     if result.multigroup:
         raise OptionError("the bootstrap works on single-group fits")
     if not result.converged:
         raise OptionError("the model did not converge, so there is nothing to bootstrap")
     replications, seed = bootstrap_options(replications, seed, workers)
+    if result.method.ordinal:
+        if design is not None:
+            raise OptionError("ordinal items are not yet fitted with a sampling design, so they cannot be bootstrapped "
+                              "with one")
+        if bollen_stine is True:
+            raise OptionError("the Bollen-Stine bootstrap of the test transforms continuous rows so that the model "
+                              "holds exactly, which has no counterpart for ordinal answers; leave it out")
+        return _bootstrap_ordinal(result, spec, rows, replications, seed, workers, scheduler, progress)
     moments_rows = rows
     names = result.observed
     start = result.theta
@@ -229,6 +243,48 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     if bca:
         influence, influence_std = influence_values(spec, moments_rows, names, start, design)
         accel_values, accel_std = acceleration(influence), acceleration(influence_std)
+    intervals = _intervals(result, values, standardized, accel_values, accel_std)
+    p_bs = converged_bs = None
+    if bollen_stine is not False:
+        transformed = bollen_stine_rows(moments_rows, result.implied_covariance,
+                                        design.weights if design is not None else None)
+        btasks = [(spec, transformed, names, int(s), start, design) for s in seeds[replications:]]
+        bdraws = [d for d in run_tasks(_replicate, btasks, workers, scheduler, progress) if d[0]]
+        converged_bs = len(bdraws)
+        if bdraws:
+            p_bs = float(np.mean([d[3] >= result.fit.chi_square for d in bdraws]))
+    return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed,
+                           intervals=intervals, bollen_stine_p=p_bs, bollen_stine_converged=converged_bs)
+
+
+def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications: int, seed: int, workers, scheduler,
+                       progress) -> BootstrapResult:
+    """The bootstrap of a one-group ordinal fit (:mod:`cfa_tool.workflows.ordinal_resampling`): percentile intervals
+    only.  BCa's acceleration comes from the influence of each row on the ML estimates, which has no counterpart
+    here, and the Bollen-Stine transformation of continuous rows has none for ordinal answers: the test stays the
+    fit's adjusted one."""
+    from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, Outcome, analysed_rows, resample
+
+    fitting = OrdinalFitting.of_fit(spec, result, keep_levels=True)
+    rows = analysed_rows(fitting, values)
+    keys = tuple((r.kind, r.variables) for r in result.estimates)
+    states = np.random.SeedSequence(seed).generate_state(replications)
+    draws = run_tasks(resample, [(fitting, rows, int(s), keys) for s in states], workers, scheduler, progress)
+    ok = [d for d in draws if d.converged]
+    if len(ok) < 2:
+        raise EstimationError(f"{len(ok)} of {replications} bootstrap resamples could be fitted, too few for intervals; "
+                              f"the model is too fragile for these data (check for Heywood cases, rare answer "
+                              f"categories, or use more rows)")
+    intervals = _intervals(result, np.array([d.values for d in ok]), np.array([d.standardized for d in ok]))
+    return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed, intervals=intervals,
+                           bollen_stine_p=None, bollen_stine_converged=None,
+                           failed=sum(d.outcome is Outcome.FAILED for d in draws))
+
+
+def _intervals(result: FitResult, values: np.ndarray, standardized: np.ndarray, accel_values: np.ndarray | None = None,
+               accel_std: np.ndarray | None = None) -> tuple[BootInterval, ...]:
+    """The intervals of every free estimate (and of every loading's standardized value) from the draws (one row per
+    converged resample, one column per estimate row of ``result``); BCa ones where accelerations are given."""
     intervals = []
     for e, row in enumerate(result.estimates):
         if not row.free and row.kind != "loading":
@@ -239,22 +295,14 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
         ):
             if scale == "unstandardized" and not row.free:
                 continue
-            if not np.isfinite(draws_e).all() or np.ptp(draws_e) == 0:
+            if scale == "standardized" and row.kind == "threshold":  # on the latent response's scale already
                 continue
+            if not np.isfinite(draws_e).all() or np.ptp(draws_e) <= 1e-10 * max(1.0, float(np.abs(draws_e).max())):
+                continue  # a value fixed by the scaling (a standardized factor variance of 1, up to rounding)
             intervals.append(BootInterval(row.kind, row.variables, scale, point, _percentile(draws_e),
                                           _bca(draws_e, point, accel) if accel is not None else (np.nan, np.nan),
                                           float(np.std(draws_e, ddof=1))))
-    p_bs = converged_bs = None
-    if bollen_stine:
-        transformed = bollen_stine_rows(moments_rows, result.implied_covariance,
-                                        design.weights if design is not None else None)
-        btasks = [(spec, transformed, names, int(s), start, design) for s in seeds[replications:]]
-        bdraws = [d for d in run_tasks(_replicate, btasks, workers, scheduler, progress) if d[0]]
-        converged_bs = len(bdraws)
-        if bdraws:
-            p_bs = float(np.mean([d[3] >= result.fit.chi_square for d in bdraws]))
-    return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed,
-                           intervals=tuple(intervals), bollen_stine_p=p_bs, bollen_stine_converged=converged_bs)
+    return tuple(intervals)
 
 
 def _percentile(draws: np.ndarray) -> tuple[float, float]:
@@ -277,19 +325,28 @@ def _bca(draws: np.ndarray, point: float, a: float, level: float = 0.95) -> tupl
 
 
 def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 1000, seed: int = 1,
-              bollen_stine: bool = True, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
+              bollen_stine: bool | None = None, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
               progress=None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               keep: tuple[str, ...] | list[str] = (), weights: str | None = None, cluster: str | None = None,
-              strata: str | None = None, weight_kind: str | None = None):
+              strata: str | None = None, weight_kind: str | None = None, ordinal: str | list[str] | None = None,
+              ordinal_estimator: str | None = None):
     """Fit the model, then bootstrap it: the result holds the fit (``.fit``) and its bootstrap.  A sampling design (``weights``,
     ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights the fit and every resample, and the
-    resamples draw whole clusters within strata."""
+    resamples draw whole clusters within strata.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and
+    ``ordinal_estimator`` as for ``fit``) are fitted by least squares, and each resample is refitted so."""
     replications, seed = bootstrap_options(replications, seed, workers)
-    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
-    continuous_only(spec, "bootstrap")
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    frame, source = loaded.frame, loaded.source
     without_exploratory_blocks(spec, "bootstrap", "it resamples the parameters, and a block's rotated loadings are "
                                                   "not among them")
     design = design_columns(weights, cluster, strata, weight_kind)
+    if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
+        if design is not None:
+            raise OptionError(f"ordinal items are not yet fitted with a sampling design, so the {design.names[0][0]} "
+                              f"column '{design.names[0][1]}' cannot apply to their bootstrap; leave out the design")
+        result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
+        return bootstrap_fit(result, spec, numeric_columns(frame, result.observed, source), replications, seed,
+                             bollen_stine, False, workers, scheduler, progress)
     options = FitOptions()
     if design is not None:
         frame, _ = check_design(frame, design, spec.observed_names, None, source)

@@ -17,6 +17,7 @@ for that misspecification only.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import partial
 from pathlib import Path
 
 import numpy as np
@@ -26,7 +27,7 @@ from cfa_tool import options as check
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import OptionError
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
-from cfa_tool.pipeline.inputs import continuous_only, converged, read_inputs
+from cfa_tool.pipeline.inputs import _fit_rows, converged, ordinal_items_of, read_inputs_with_notes
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
@@ -68,6 +69,13 @@ class CutoffResult(Presentable):
     n_obs: int
     cutoffs: tuple[Cutoff, ...]
     misspecification_size: float = float("nan")  # standardized size of what is left out
+    #: ordinal items: share of the samples from the fitted model that its adjusted test rejected at .05
+    correct_rejected: float | None = None
+
+    @property
+    def statistic(self) -> str:
+        """Which statistic the CFI and RMSEA come from (of the fit and of every simulated sample alike)."""
+        return self.fit.robust.test.label if self.fit.method.ordinal else "the maximum-likelihood chi-square"
 
     def to_dict(self) -> dict:
         """The fit and, under "result", the cutoffs."""
@@ -75,6 +83,7 @@ class CutoffResult(Presentable):
             "misspecification": self.misspecification, "replications": self.replications,
             "converged_correct": self.converged_correct, "converged_misspecified": self.converged_misspecified,
             "seed": self.seed, "n_obs": self.n_obs, "misspecification_size": self.misspecification_size,
+            "indices_from": self.statistic, "correct_model_rejected": self.correct_rejected,
             "cutoffs": [c.to_dict() for c in self.cutoffs]})}
 
 
@@ -89,10 +98,11 @@ N_STEPS = (2, 4, 8, 16)  # multiples of N tried when no cutoff exists at the dat
 SIZE_STEPS = (1.5, 2.0, 3.0)  # multiples of the misspecification tried at the data's N
 
 
-def misspecified_covariance(spec: Spec, result: FitResult, scale: float = 1.0) -> tuple[np.ndarray, str, float]:
-    table = build_parameter_table(spec)
-    model = StructuredModel(table)
-    mats = model.matrices(result.theta)
+def misspecified_covariance(spec: Spec, result: FitResult, scale: float = 1.0,
+                            matrices=None) -> tuple[np.ndarray, str, float]:
+    """The misspecified population's covariance, what is left out, and its standardized size; ``matrices``: the
+    fitted model's matrices when they are not those of ``spec`` at ``result.theta`` (ordinal items)."""
+    mats = matrices if matrices is not None else StructuredModel(build_parameter_table(spec)).matrices(result.theta)
     L = mats.L.copy()
     T = mats.T.copy()
     phi = mats.latent_covariance()
@@ -139,13 +149,19 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
         raise OptionError("model-specific cutoffs need a converged single-group fit")
     replications, seed = cutoff_options(replications, seed, workers)
     n = result.n_obs
-    wrong, what, size = misspecified_covariance(spec, result)
     seeds = np.random.SeedSequence(seed)
-    sample = _sampler(spec, result, replications, seeds, workers, scheduler, progress)
+    if result.method.ordinal:
+        misspecify = partial(_latent_response_misspecified, spec, result)
+        sample = _ordinal_sampler(spec, result, replications, seeds, workers, scheduler, progress)
+        observed = {"cfi": result.robust.cfi_robust, "rmsea": result.robust.rmsea_robust, "srmr": result.fit.srmr}
+    else:
+        misspecify = partial(misspecified_covariance, spec, result)
+        sample = _sampler(spec, result, replications, seeds, workers, scheduler, progress)
+        observed = {"cfi": result.fit.cfi, "rmsea": result.fit.rmsea, "srmr": result.fit.srmr}
+    wrong, what, size = misspecify()
     correct, mis = sample(result.implied_covariance, n), sample(wrong, n)
     if len(correct) < 10 or len(mis) < 10:
         raise OptionError("too few simulated fits converged to set cutoffs")
-    observed = {"cfi": result.fit.cfi, "rmsea": result.fit.rmsea, "srmr": result.fit.srmr}
     found = _cutoffs(correct, mis)
     # where no cutoff exists, find (by simulating, not by formula) the N, or the size of the
     # misspecification, at which one would: the researcher learns what these data can detect
@@ -163,7 +179,7 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
         if all(key in separating_size or cut is not None for key, cut in found.items()):
             break
         try:
-            stronger, _, _ = misspecified_covariance(spec, result, multiple)
+            stronger, _, _ = misspecify(multiple)
         except ValueError:  # the stronger misspecification is not a possible population
             break
         more = _cutoffs(correct, sample(stronger, n))
@@ -177,9 +193,43 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
             beyond = bool(observed[index] < cut) if index == "cfi" else bool(observed[index] > cut)
         cutoffs.append(Cutoff(index, level, cut, float(observed[index]), beyond,
                               separating_n.get((index, level)), separating_size.get((index, level))))
+    # ordinal items: the share of correct samples the fit's adjusted test rejects at .05 (its nominal rate)
+    rejected = float(np.mean(correct[:, len(INDICES)] < 0.05)) if correct.shape[1] > len(INDICES) else None
     return CutoffResult(fit=result, misspecification=what, replications=replications, converged_correct=len(correct),
                         converged_misspecified=len(mis), seed=seed, n_obs=n, cutoffs=tuple(cutoffs),
-                        misspecification_size=size)
+                        misspecification_size=size, correct_rejected=rejected)
+
+
+def _latent_response_misspecified(spec: Spec, result: FitResult, scale: float = 1.0) -> tuple[np.ndarray, str, float]:
+    """The misspecified population of an ordinal fit, as a correlation matrix of latent responses: the fitted
+    matrices with each latent response's residual variance making its variance 1, the misspecification added,
+    and the responses standardized again, so that cut at the fitted thresholds every item keeps its answer
+    proportions and only the correlations carry the misspecification."""
+    from cfa_tool.pipeline.ordinal import ordinal_spec, unit_variance_matrices
+
+    model = StructuredModel(build_parameter_table(ordinal_spec(spec)[0]))
+    wrong, what, size = misspecified_covariance(spec, result, scale, unit_variance_matrices(model.matrices(result.theta)))
+    sd = np.sqrt(np.diag(wrong))
+    return wrong / np.outer(sd, sd), what, size
+
+
+def _ordinal_sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.SeedSequence, workers,
+                     scheduler, progress):
+    """As :func:`_sampler` for a fit of ordinal items: latent responses cut at the fitted thresholds, each sample
+    fitted by the fit's least squares; per converged sample its adjusted CFI and RMSEA, its SRMR and the adjusted
+    test's p-value (the same statistics the fit reports)."""
+    from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, fit_thresholds, simulated_fit
+
+    fitting = OrdinalFitting.of_fit(spec, result, keep_levels=False)
+    thresholds = fit_thresholds(result)
+
+    def sample(sigma: np.ndarray, n: int) -> np.ndarray:
+        states = seeds.spawn(1)[0].generate_state(replications)
+        tasks = [(fitting, sigma, thresholds, n, int(s), ()) for s in states]
+        draws = run_tasks(simulated_fit, tasks, workers, scheduler, progress)
+        return np.array([(d.cfi, d.rmsea, d.srmr, d.p_value) for d in draws if d.converged]).reshape(-1, len(INDICES) + 1)
+
+    return sample
 
 
 def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.SeedSequence, workers, scheduler, progress):
@@ -217,11 +267,17 @@ def _cutoffs(correct: np.ndarray, mis: np.ndarray) -> dict[tuple[str, float], fl
 
 def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 200, seed: int = 1,
             workers: int | None = None, scheduler: str | None = None, progress=None, sheet: str | None = None,
-            missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = ()):
+            missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
+            ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None):
     """Fit the model, then simulate model-specific fit-index cutoffs: the result holds the fit (``.fit``) and the
-    cutoffs."""
+    cutoffs.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and ``ordinal_estimator`` as for ``fit``) are
+    fitted by least squares, the samples are simulated as ordinal answers and fitted so, and the cutoffs are of
+    the adjusted indices the fit reports."""
     replications, seed = cutoff_options(replications, seed, workers)
-    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
-    continuous_only(spec, "cutoffs")
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    frame, source = loaded.frame, loaded.source
+    if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
+        result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
+        return fit_cutoffs(spec, result, replications, seed, workers, scheduler, progress)
     result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
     return fit_cutoffs(spec, result, replications, seed, workers, scheduler, progress)

@@ -52,11 +52,16 @@ class MonteCarloPower(Presentable):
     seed: int
     parameters: tuple[ParameterPower, ...]
     defaulted: tuple[str, ...]
+    #: ordinal items: how each sample was fitted (the estimator's words) and the share of converged replications
+    #: whose adjusted test rejected the (true) model at alpha
+    ordinal: str | None = None
+    model_rejected: float | None = None
 
     def to_dict(self) -> dict:
         return {"n_obs": self.n_obs, "replications": self.replications, "converged": self.converged,
                 "convergence_rate": self.converged / self.replications, "alpha": self.alpha, "seed": self.seed,
-                "parameters": [p.to_dict() for p in self.parameters], "population_defaults": list(self.defaulted)}
+                "parameters": [p.to_dict() for p in self.parameters], "population_defaults": list(self.defaulted),
+                "ordinal_items_fitted_by": self.ordinal, "model_test_rejection_rate": self.model_rejected}
 
 
 @dataclass(frozen=True)
@@ -76,7 +81,9 @@ class PowerCurve(Presentable):
                 "seed": first.seed, "converged": [r.converged for r in self.results],
                 "power": [{"label": p.label, "population": p.population,
                            "power": [r.parameters[k].power for r in self.results]} for k, p in enumerate(first.parameters)],
-                "by_sample_size": [r.to_dict() for r in self.results], "population_defaults": list(first.defaulted)}
+                "by_sample_size": [r.to_dict() for r in self.results], "population_defaults": list(first.defaulted),
+                "ordinal_items_fitted_by": first.ordinal,
+                "model_test_rejection_rate": [r.model_rejected for r in self.results] if first.ordinal else None}
 
 
 def _replicate(task) -> tuple[bool, np.ndarray, np.ndarray]:
@@ -88,16 +95,26 @@ def _replicate(task) -> tuple[bool, np.ndarray, np.ndarray]:
 
 def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications: int = 500, seed: int = 1,
                       alpha: float = 0.05, workers: int | None = None, scheduler: str | None = None, progress=None,
-                      population=None) -> MonteCarloPower | PowerCurve:
+                      population=None, categories: int | None = None,
+                      ordinal_estimator: str | None = None) -> MonteCarloPower | PowerCurve:
     """Monte Carlo power at one sample size, or a :class:`PowerCurve` when ``n_obs`` lists several
-    (a list, or text such as '100,200,400'); every replication of every size runs in one batch of tasks."""
-    from cfa_tool.pipeline.inputs import continuous_only, load_spec, without_exploratory_blocks
+    (a list, or text such as '100,200,400'); every replication of every size runs in one batch of tasks.
 
-    spec = without_exploratory_blocks(continuous_only(load_spec(spec), "power-simulation"), "power-simulation",
+    Ordinal items: those an 'ordinal' statement declares, cut into ``categories`` equally likely categories
+    (every item when no statement declares any), or the items of an earlier ordinal fit given as ``population``,
+    cut at its thresholds.  Each sample is then fitted by least squares (``ordinal_estimator``, diagonally
+    weighted by default) with robust standard errors, and the share of replications whose adjusted test rejects
+    the true model is reported beside the power."""
+    from cfa_tool.pipeline.inputs import load_spec, ordinal_estimator_option, without_exploratory_blocks
+    from cfa_tool.workflows.simulation import with_categories
+
+    spec = without_exploratory_blocks(load_spec(spec), "power-simulation",
                                       "its power would be of the block's unrotated loadings, which no report shows")
     replications = check.replications(replications, minimum=2)
     seed = check.seed(seed)
     alpha = check.probability("alpha (the significance level)", alpha)
+    if categories is not None:
+        categories = check.whole_number("the number of categories", categories, 2, check.MAX_CATEGORIES)
     p = len(spec.observed_names)
     sizes = check.sample_sizes(n_obs)
     for n in sizes:
@@ -107,15 +124,60 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
         if n * p > check.MAX_SIMULATED_CELLS:
             raise OptionError(f"{n:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values per "
                               f"simulated data set; plan with a smaller sample size")
-    population = population_from_spec(spec, population)
+    population = with_categories(population_from_spec(spec, population), spec, categories)
+    weighting = ordinal_estimator_option(ordinal_estimator, population.ordinal_items)
     # one size keeps the seeds it always had; several take one stream per size from the same seed
     streams = [np.random.SeedSequence(seed)] if len(sizes) == 1 else np.random.SeedSequence(seed).spawn(len(sizes))
+    if population.ordinal_items:
+        return _ordinal_power(spec, population, sizes, streams, replications, seed, alpha, weighting, workers,
+                              scheduler, progress)
     tasks = [(spec, population.sigma, population.observed, n, int(s), population.theta)
              for n, stream in zip(sizes, streams) for s in stream.generate_state(replications)]
     results = run_tasks(_replicate, tasks, workers, scheduler, progress)
     powers = tuple(_summary(population, n, replications, seed, alpha, results[k * replications:(k + 1) * replications])
                    for k, n in enumerate(sizes))
     return powers[0] if len(sizes) == 1 else PowerCurve(powers)
+
+
+def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, seed: int, alpha: float, weighting,
+                   workers, scheduler, progress) -> MonteCarloPower | PowerCurve:
+    """Power with ordinal items (:mod:`cfa_tool.workflows.ordinal_resampling`): the parameters are those of the
+    one-group ordinal model (the latent responses' residual variances follow from their unit variances), whose
+    population values are the population's on the latent responses' scale."""
+    from cfa_tool.model.parameters import build_parameter_table
+    from cfa_tool.pipeline.ordinal import ordinal_spec
+    from cfa_tool.workflows.ordinal_resampling import OrdinalFitting, simulated_fit
+
+    variances = np.diag(population.sigma)
+    if np.abs(variances - 1.0).max() > 1e-6:
+        k = int(np.argmax(np.abs(variances - 1.0)))
+        raise OptionError(f"with ordinal items the population values are on the scale of latent responses of variance "
+                          f"1, but the values given make the variance of '{population.observed[k]}' "
+                          f"{variances[k]:.3g}; change the 'start' values")
+    table = build_parameter_table(ordinal_spec(spec)[0])
+    value_of = {(v["kind"], tuple(v["variables"])): v["value"] for v in population.values()}
+    entry_of = {}  # each free parameter through an entry that is that parameter alone
+    for par in table.parameters:
+        if len(par.terms) == 1 and par.terms[0][1] == 1.0:
+            entry_of.setdefault(par.terms[0][0], (par.kind, par.variables))
+    keys = [entry_of[k] for k in range(table.n_free)]
+    truth = [value_of[key] for key in keys]
+    fitting = OrdinalFitting(spec, population.observed,
+                             frozenset(x for x in population.observed if x not in population.ordinal_items), weighting)
+    tasks = [(fitting, population.sigma, population.thresholds, n, int(s), tuple(keys))
+             for n, stream in zip(sizes, streams) for s in stream.generate_state(replications)]
+    draws = run_tasks(simulated_fit, tasks, workers, scheduler, progress)
+    defaulted = tuple(label for label in population.defaulted if label in table.free_labels)
+    powers = []
+    for k, n in enumerate(sizes):
+        ok = [d for d in draws[k * replications:(k + 1) * replications] if d.converged]
+        if not ok:
+            raise OptionError(f"no replication converged at N = {n}; check the population values and the sample size")
+        thetas, ses = np.array([d.values for d in ok]), np.array([d.se for d in ok])
+        powers.append(MonteCarloPower(n, replications, len(ok), alpha, seed,
+                                      _parameter_rows(table.free_labels, np.array(truth), thetas, ses, alpha), defaulted,
+                                      weighting.phrase, float(np.mean([d.p_value < alpha for d in ok]))))
+    return powers[0] if len(sizes) == 1 else PowerCurve(tuple(powers))
 
 
 def _summary(population, n_obs: int, replications: int, seed: int, alpha: float, results: list) -> MonteCarloPower:
@@ -131,15 +193,23 @@ def _summary(population, n_obs: int, replications: int, seed: int, alpha: float,
             entry_of.setdefault(par.terms[0][0], e)
     thetas = np.array([t for t, _ in ok])
     ses = np.array([se[[entry_of[k] for k in range(table.n_free)]] for _, se in ok])
+    rows = _parameter_rows(table.free_labels, population.theta, thetas, ses, alpha)
+    return MonteCarloPower(n_obs, replications, len(ok), alpha, seed, rows, population.defaulted)
+
+
+def _parameter_rows(labels, population: np.ndarray, thetas: np.ndarray, ses: np.ndarray,
+                    alpha: float) -> tuple[ParameterPower, ...]:
+    """Each parameter's power, bias and coverage from the estimates and standard errors of the converged
+    replications (one row each, one column per parameter)."""
     crit = dist.norm_ppf(1 - alpha / 2)
     rows = []
-    for k in range(table.n_free):
-        truth = population.theta[k]
+    for k, label in enumerate(labels):
+        truth = population[k]
         est, se = thetas[:, k], ses[:, k]
         z = np.abs(est / se)
         covered = np.abs(est - truth) <= dist.norm_ppf(0.975) * se
         rows.append(ParameterPower(
-            table.free_labels[k], float(truth), float(est.mean()),
+            label, float(truth), float(est.mean()),
             float((est.mean() - truth) / truth) if truth != 0 else float("nan"),
             float(est.std(ddof=1)), float(np.nanmean(se)), float(np.nanmean(covered)), float(np.nanmean(z > crit))))
-    return MonteCarloPower(n_obs, replications, len(ok), alpha, seed, tuple(rows), population.defaulted)
+    return tuple(rows)

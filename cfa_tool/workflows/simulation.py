@@ -43,6 +43,13 @@ class Population:
     sigma: np.ndarray
     defaulted: tuple[str, ...]  # labels of the parameters that took default values
     fitted_from: str | None = None  # the earlier fit the values come from (None: the model file and defaults)
+    #: ordinal items: each item's thresholds on its standardized latent response, in model order of the items (None:
+    #: every item continuous); set by an earlier ordinal fit or by a number of categories
+    thresholds: dict[str, np.ndarray] | None = None
+
+    @property
+    def ordinal_items(self) -> tuple[str, ...]:
+        return tuple(x for x in self.observed if self.thresholds and x in self.thresholds)
 
     @property
     def observed(self) -> tuple[str, ...]:
@@ -65,6 +72,10 @@ class Population:
             seen.add(par.terms[0][0])
             out.append({"kind": par.kind, "variables": list(par.variables), "value": float(entries[e]),
                         "standardized": float(standardized[e]), "default": self.table.free_labels[par.terms[0][0]] in defaulted})
+        for item in self.ordinal_items:  # on the latent response's scale (variance 1): standardized already
+            out.extend({"kind": "threshold", "variables": [item, str(step + 1)], "value": float(tau),
+                        "standardized": float(tau), "default": self.fitted_from is None}
+                       for step, tau in enumerate(self.thresholds[item]))
         return out
 
 
@@ -181,9 +192,6 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
     """Population values taken from an earlier fit of the same model: every free parameter's estimate, so
     reverse-keyed loadings, negative correlations and the observed residual variances carry over."""
     rows, source, admissible, grouped, ordinal = fitted_estimates(fitted)
-    if ordinal or any(isinstance(row, dict) and row.get("kind") == "threshold" for row in rows):
-        raise OptionError(f"{source}: the fit is of ordinal items, whose thresholds a population of continuous "
-                          f"answers cannot carry; fit the items as continuous to plan from them")
     if grouped:
         raise OptionError(f"{source}: the fit has groups; population values are taken from a fit of one group")
     if not admissible:
@@ -200,11 +208,25 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
         return kind, tuple(sorted(names)) if kind in _COVARIANCE_KINDS else names
 
     value_of = {}
+    thresholds: dict[str, list[float]] = {}
     for row in rows:
         try:
-            value_of[key(row["kind"], row["variables"])] = (float(row["estimate"]), bool(row.get("free", True)))
-        except (KeyError, TypeError, ValueError):
+            value = float(row["estimate"])
+            if row["kind"] == "threshold":  # (item, step): first-step thresholds of a one-group ordinal fit
+                item, step = str(row["variables"][0]), int(row["variables"][1])
+                thresholds.setdefault(item, []).append(value)
+                if step != len(thresholds[item]):
+                    raise ValueError
+                continue
+            value_of[key(row["kind"], row["variables"])] = (value, bool(row.get("free", True)))
+        except (KeyError, TypeError, ValueError, IndexError):
             raise OptionError(f"{source}: an estimate row lacks its kind, variables or value") from None
+    unknown = sorted(set(thresholds) - set(spec.observed_names))
+    if unknown:
+        raise OptionError(f"{source} has thresholds of '{unknown[0]}', which this model does not have: it is the result "
+                          f"of a different model")
+    if ordinal and not thresholds:
+        raise OptionError(f"{source}: the fit is of ordinal items but gives no thresholds")
     table = build_parameter_table(spec)
     known = {key(par.kind, par.variables) for par in table.parameters}
     # intercepts and factor means (a fit with gaps or groups estimates them) are not part of a population
@@ -238,7 +260,10 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
     sigma = model.implied(theta)
     if np.linalg.eigvalsh(sigma)[0] <= 0:
         raise OptionError(f"{source}: its estimates imply a covariance matrix that is not positive definite")
-    return Population(spec, table, theta, sigma, (), source)
+    cuts = {x: np.asarray(thresholds[x], dtype=float) for x in table.observed if x in thresholds}
+    if any(np.any(np.diff(t) <= 0) or not np.isfinite(t).all() for t in cuts.values()):
+        raise OptionError(f"{source}: its thresholds are not increasing finite numbers")
+    return Population(spec, table, theta, sigma, (), source, cuts or None)
 
 
 def population_from_spec(spec: Spec, fitted=None) -> Population:
@@ -280,11 +305,46 @@ def simulate_rows(sigma: np.ndarray, n: int, rng: np.random.Generator, means: np
     return rows + (0.0 if means is None else means)
 
 
-def to_ordinal(rows: np.ndarray, sigma: np.ndarray, categories: int) -> np.ndarray:
-    """Cut each standardized variable at the normal quantiles that give equally likely categories 1..k."""
+def equal_thresholds(categories: int) -> np.ndarray:
+    """The thresholds of a standardized latent response that give ``categories`` equally likely categories:
+    the normal quantiles Phi^-1(c / k), c = 1 .. k-1."""
+    return dist.norm_ppf(np.arange(1, categories) / categories)
+
+
+def with_categories(population: Population, spec: Spec, categories: int | None) -> Population:
+    """The population with thresholds for its ordinal items: those of an earlier ordinal fit, or equally
+    likely ``categories`` for the items an 'ordinal' statement declares (every item without one)."""
+    from dataclasses import replace
+
+    declared = [x.text for x in spec.ordinal]
+    if population.thresholds is not None:
+        if categories is not None:
+            raise OptionError(f"the categories come from the thresholds of the earlier fit in "
+                              f"{population.fitted_from}, so a number of categories cannot apply; leave it out")
+        lacking = [x for x in declared if x not in population.thresholds]
+        if lacking:
+            raise OptionError(f"the model declares '{lacking[0]}' ordinal, but the earlier fit in "
+                              f"{population.fitted_from} treated it as continuous and gives no thresholds for it")
+        return population
+    if declared and categories is None:
+        raise OptionError(f"the model declares ordinal items ({', '.join(declared[:5])}); give the number of "
+                          f"categories to cut them into (--categories)")
+    if categories is None:
+        return population
+    items = declared or list(population.observed)
+    return replace(population, thresholds={x: equal_thresholds(categories) for x in population.observed if x in items})
+
+
+def cut_at_thresholds(rows: np.ndarray, sigma: np.ndarray, observed: tuple[str, ...],
+                      thresholds: dict[str, np.ndarray]) -> np.ndarray:
+    """Latent responses (``rows``, covariance ``sigma``) as answers 1..k: each ordinal item's response standardized
+    and cut at its thresholds (answer c when tau_(c-1) < y* <= tau_c); continuous items are left as they are."""
+    out = rows.copy()
     sd = np.sqrt(np.diag(sigma))
-    cuts = dist.norm_ppf(np.arange(1, categories) / categories)
-    return (np.searchsorted(cuts, rows / sd, side="right") + 1).astype(float)
+    for k, item in enumerate(observed):
+        if item in thresholds:
+            out[:, k] = np.searchsorted(thresholds[item], rows[:, k] / sd[k], side="left") + 1
+    return out
 
 
 @dataclass(frozen=True, eq=False)
@@ -299,7 +359,8 @@ class SimulatedData(Presentable):
 
     def to_dict(self) -> dict:
         return {"rows": len(self.frame), "variables": list(self.frame.columns), "seed": self.seed,
-                "categories": self.categories, "missing_share": self.missing, "population": self.population.values()}
+                "categories": self.categories, "ordinal_items": list(self.population.ordinal_items),
+                "missing_share": self.missing, "population": self.population.values()}
 
 
 def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing: float = 0.0,
@@ -323,19 +384,15 @@ def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing
     if n * p > check.MAX_SIMULATED_CELLS:
         raise OptionError(f"{n:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values; "
                           f"simulate fewer rows at a time")
-    declared = [n_.text for n_ in spec.ordinal]
-    if declared and categories is None:
-        raise OptionError(f"the model declares ordinal items ({', '.join(declared[:5])}); give the number of "
-                          f"categories to cut them into (--categories)")
-    population = population_from_spec(spec, population)
+    population = with_categories(population_from_spec(spec, population), spec, categories)
     rng = np.random.default_rng(seed)
     rows = simulate_rows(population.sigma, n, rng)
-    if categories is not None:
-        cut = [population.observed.index(x) for x in declared] if declared else list(range(rows.shape[1]))
-        rows[:, cut] = to_ordinal(rows[:, cut], population.sigma[np.ix_(cut, cut)], categories)
+    cut = population.ordinal_items
+    if cut:
+        rows = cut_at_thresholds(rows, population.sigma, population.observed, population.thresholds)
     if missing:
         rows[rng.random(rows.shape) < missing] = np.nan
     frame = pd.DataFrame(rows, columns=list(population.observed))
-    if categories is not None:  # answers are whole numbers (a nullable integer type keeps the gaps)
-        frame = frame.astype({population.observed[k]: "Int64" for k in cut})
+    if cut:  # answers are whole numbers (a nullable integer type keeps the gaps)
+        frame = frame.astype({x: "Int64" for x in cut})
     return SimulatedData(frame, population, seed, categories, missing)

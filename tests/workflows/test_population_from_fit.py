@@ -55,17 +55,24 @@ def test_a_different_model_or_an_impossible_fit_is_refused(fitted, hs_data):
         population_from_spec(cfa_tool.parse_model(THREE + "covary x7, x8\ncovary x8, x9\n"), heywood)
 
 
-def test_command_line(tmp_path, fitted):
+def simulated_from_fit(tmp_path, model_text: str, fitted, n: int = 50):
+    """``simulate --population-from`` run on the JSON of ``fitted``: the model file, the JSON file, the CSV written
+    and the population the report's JSON lists (every value checked to come from the fit, none a default)."""
     model = tmp_path / "m.cfa"
-    model.write_text(THREE)
+    model.write_text(model_text)
     result = tmp_path / "fit.json"
     result.write_text(json.dumps(fitted.to_dict()))
     out = tmp_path / "sim.csv"
-    proc = run("simulate", str(model), "--n", "50", "--output", str(out), "--population-from", str(result),
+    proc = run("simulate", str(model), "--n", str(n), "--output", str(out), "--population-from", str(result),
                "--json", str(tmp_path / "pop.json"))
     assert proc.returncode == 0, proc.stderr
     population = json.loads((tmp_path / "pop.json").read_text())["population"]
     assert not any(v["default"] for v in population)
+    return model, result, out, population
+
+
+def test_command_line(tmp_path, fitted):
+    model, result, out, _ = simulated_from_fit(tmp_path, THREE, fitted)
     bad = tmp_path / "bad.json"
     bad.write_text("{not json")
     proc = run("simulate", str(model), "--n", "50", "--output", str(tmp_path / "sim2.csv"), "--population-from", str(bad))

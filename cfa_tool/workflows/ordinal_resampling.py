@@ -1,0 +1,139 @@
+"""Ordinal items in the workflows that refit many samples: the bootstrap, model-specific cutoffs and Monte
+Carlo power.
+
+Every sample, a bootstrap resample of the rows or a sample simulated from a population, gets its own
+thresholds and polychoric correlations (two-step, Olsson 1979; :mod:`cfa_tool.data.polychoric`) and is refitted
+by the fit's own least-squares estimator with its robust standard errors and scale-shifted adjusted test
+(:func:`cfa_tool.pipeline.ordinal.fit_ordinal`).  Simulated ordinal answers are latent responses drawn from the
+model-implied correlation matrix and cut at the thresholds (the latent-response formulation; Muthen 1984).
+A sample whose answers cannot be analysed (an item left with one category, or, in a bootstrap resample, an
+answer category of the data that no resampled row gives, so that its thresholds would not match the fit's) is
+counted as failed, apart from the fits that did not converge; neither is dropped silently.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from enum import Enum
+
+import numpy as np
+import pandas as pd
+
+from cfa_tool.data.polychoric import ordinal_moments
+from cfa_tool.errors import CfaError
+from cfa_tool.method import MissingData, Weighting
+from cfa_tool.numerics.threads import blas_threads_for
+from cfa_tool.pipeline.continuous import FitOptions
+from cfa_tool.pipeline.ordinal import fit_ordinal
+from cfa_tool.pipeline.results import FitResult
+from cfa_tool.workflows.simulation import cut_at_thresholds, simulate_rows
+
+#: refits keep estimates, standard errors and the test; reliability, diagnostics and score tests are not needed
+REFIT_OPTIONS = FitOptions(diagnostics=False, modification_indices=False)
+
+
+class Outcome(Enum):
+    """What became of one sample."""
+
+    CONVERGED = "converged"
+    NOT_CONVERGED = "did not converge"
+    FAILED = "could not be analysed"
+
+
+Key = tuple[str, tuple[str, ...]]  # (kind, variables) of an estimate row
+
+
+@dataclass(frozen=True)
+class OrdinalFitting:
+    """How each sample is fitted: the model, the items (and which are continuous), the least-squares weighting,
+    whether rows with gaps are kept (pairwise present rows), and the answer categories every bootstrap resample
+    must keep (None for simulated samples, whose thresholds are not compared with the data's)."""
+
+    spec: object
+    names: tuple[str, ...]
+    continuous: frozenset
+    weighting: Weighting
+    pairwise: bool = False
+    levels: dict | None = None
+
+    @classmethod
+    def of_fit(cls, spec, result: FitResult, keep_levels: bool) -> "OrdinalFitting":
+        """The fitting of an earlier one-group ordinal fit ``result`` of ``spec``."""
+        ordinal = {x: tuple(v for v, _ in cats) for x, cats in zip(result.observed, result.data.categories) if cats}
+        return cls(spec, tuple(result.observed), frozenset(x for x in result.observed if x not in ordinal),
+                   result.method.weighting, result.method.missing is MissingData.PAIRWISE,
+                   ordinal if keep_levels else None)
+
+    def fit(self, rows: np.ndarray) -> FitResult | None:
+        """The least-squares fit of ``rows`` (columns in ``names`` order); None when the answers cannot be analysed."""
+        frame = pd.DataFrame(rows, columns=list(self.names))
+        try:
+            with blas_threads_for(len(self.names)):
+                moments = ordinal_moments(frame, self.names, "<sample>", self.continuous, levels=self.levels,
+                                          pairwise=self.pairwise)
+                return fit_ordinal(self.spec, moments, REFIT_OPTIONS, self.weighting)
+        except CfaError:
+            return None
+
+
+@dataclass(frozen=True)
+class Refit:
+    """What a worker sends back about one sample: its outcome, the estimate, standardized value and standard error
+    of each asked-for estimate row, and the fit's adjusted indices and p-value."""
+
+    outcome: Outcome
+    values: np.ndarray
+    standardized: np.ndarray
+    se: np.ndarray
+    cfi: float = float("nan")
+    rmsea: float = float("nan")
+    srmr: float = float("nan")
+    p_value: float = float("nan")
+
+    @property
+    def converged(self) -> bool:
+        return self.outcome is Outcome.CONVERGED
+
+
+def _refit(result: FitResult | None, keys: tuple[Key, ...]) -> Refit:
+    nan = np.full(len(keys), np.nan)
+    if result is None:
+        return Refit(Outcome.FAILED, nan, nan, nan)
+    if not result.converged or result.fit is None or result.robust is None:
+        return Refit(Outcome.NOT_CONVERGED, nan, nan, nan)
+    rows = {(r.kind, r.variables): r for r in result.estimates}
+    found = [rows.get(k) for k in keys]
+    if any(r is None for r in found):  # an item with fewer categories than the population's: no such threshold
+        return Refit(Outcome.FAILED, nan, nan, nan)
+    return Refit(Outcome.CONVERGED, np.array([r.estimate for r in found]), np.array([r.standardized for r in found]),
+                 np.array([r.se for r in found]), result.robust.cfi_robust, result.robust.rmsea_robust,
+                 result.fit.srmr, result.robust.p_value_scaled)
+
+
+def resample(task) -> Refit:
+    """One bootstrap resample: rows drawn with replacement, thresholds and correlations recomputed, refitted."""
+    fitting, rows, seed, keys = task
+    rng = np.random.default_rng(seed)
+    return _refit(fitting.fit(rows[rng.integers(0, len(rows), len(rows))]), keys)
+
+
+def simulated_fit(task) -> Refit:
+    """One simulated sample of ``n`` rows: latent responses from ``sigma``, ordinal items cut at ``thresholds``."""
+    fitting, sigma, thresholds, n, seed, keys = task
+    latent = simulate_rows(sigma, n, np.random.default_rng(seed))
+    return _refit(fitting.fit(cut_at_thresholds(latent, sigma, fitting.names, thresholds)), keys)
+
+
+def analysed_rows(fitting: OrdinalFitting, values: np.ndarray) -> np.ndarray:
+    """The rows the fit analysed: those with any answer (pairwise present rows) or the complete ones (listwise)."""
+    answered = ~np.isnan(values)
+    return values[answered.any(axis=1) if fitting.pairwise else answered.all(axis=1)]
+
+
+def fit_thresholds(result: FitResult) -> dict[str, np.ndarray]:
+    """Each ordinal item's thresholds in a one-group ordinal fit (its first-step estimates)."""
+    out: dict[str, list[float]] = {}
+    for row in result.estimates:
+        if row.kind == "threshold":
+            out.setdefault(row.variables[0], []).append(row.estimate)
+    return {x: np.asarray(t, dtype=float) for x, t in out.items()}
