@@ -115,7 +115,8 @@ class StackedNormal:
         L, P, LP, sigma = self._sigma(theta)
         R, p, m = len(theta), self.p, self.m
         factor, ok = _cholesky(sigma)
-        sigma = np.where(ok[:, None, None], sigma, np.eye(p))
+        if not ok.all():
+            sigma = np.where(ok[:, None, None], sigma, np.eye(p))
         logdet = 2.0 * np.log(np.abs(np.diagonal(factor, axis1=1, axis2=2))).sum(axis=1)
         inverse = np.linalg.inv(sigma)
         inverse = 0.5 * (inverse + np.swapaxes(inverse, 1, 2))
@@ -208,7 +209,7 @@ def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarr
         scoring, scoring_ok = np.full((n, q), np.nan), np.zeros(n, dtype=bool)
         scored = ~newton_first
         if scored.any():
-            scoring[scored], scoring_ok[scored] = _solve(H[scored], -g[scored])
+            scoring[scored], scoring_ok[scored] = _solve(H[scored], -g[scored], positive_definite=False)
         step = np.where(newton_first[:, None], newton, scoring)
         decrement = -np.einsum("ij,ij->i", g, step)
         done = (newton_first | scoring_ok) & (decrement < TOLERANCE)
@@ -296,14 +297,25 @@ def _cholesky(A: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return factor, ok
 
 
-def _solve(H: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Solutions of H_r x_r = b_r for a stack of symmetric matrices scaled to unit diagonal, and which
-    H_r are positive definite (checked by a Cholesky factorisation, as numerics.linalg.scaled_solve does
-    for one; the solutions of the others are NaN)."""
+def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True) -> tuple[np.ndarray, np.ndarray]:
+    """Solutions of H_r x_r = b_r for a stack of symmetric matrices scaled to unit diagonal (as
+    numerics.linalg.scaled_solve does for one), and which of them were found: with ``positive_definite``
+    only those of positive definite H_r (checked by a Cholesky factorisation), otherwise those of
+    nonsingular H_r; the solutions not found are NaN."""
     d = 1.0 / np.sqrt(np.maximum(np.abs(np.diagonal(H, axis1=1, axis2=2)), 1e-300))
     scaled = H * (d[:, :, None] * d[:, None, :])
-    _, ok = _cholesky(scaled)
+    if positive_definite:
+        ok = _cholesky(scaled)[1]
+    else:
+        ok = np.isfinite(scaled).all(axis=(1, 2))
     x = np.full_like(b, np.nan)
     if ok.any():
-        x[ok] = np.linalg.solve(scaled[ok], (d * b)[ok][:, :, None])[:, :, 0] * d[ok]
-    return x, ok
+        try:
+            x[ok] = np.linalg.solve(scaled[ok], (d * b)[ok][:, :, None])[:, :, 0] * d[ok]
+        except np.linalg.LinAlgError:  # a singular one (numpy stops at the first): one by one
+            for r in np.flatnonzero(ok):
+                try:
+                    x[r] = np.linalg.solve(scaled[r], d[r] * b[r]) * d[r]
+                except np.linalg.LinAlgError:
+                    ok[r] = False
+    return x, ok & np.isfinite(x).all(axis=1)
