@@ -9,7 +9,9 @@ Bollen-Stine (1992) p-value of the chi-square test resamples rows transformed
 so that the model holds exactly, Y = (X - m) S^-1/2 Sigma^1/2 + m, and counts
 the bootstrap chi-squares at least as large as the observed one.
 Replications that do not converge are counted and reported, never dropped
-silently.
+silently.  Resamples are refitted together, in batches (pipeline.continuous.replicate_fits);
+each resample's draw comes from its own seed, so the results do not depend on the batches or
+the worker processes.
 
 Under a sampling design whole clusters are resampled (each row its own cluster
 when none is given), independently within strata, and every row keeps its
