@@ -4,6 +4,7 @@ shared machine (wall-clock times here vary by up to 2x between runs).
     python bench/instructions.py                  # case 1, lean call; needs valgrind; about a minute
     python bench/instructions.py --call default   # case 1 as a user runs it: fit(text, data).to_dict()
     python bench/instructions.py --items 30 --fits 100 --call default   # a simulated model of run.py
+    python bench/instructions.py --call bootstrap --fits 1000   # per bootstrap refit of case 1 (one process)
 
 Runs the fit 10 and 10 + ``--fits`` (default 1000) times under ``valgrind --tool=callgrind`` in two
 processes and reports the difference divided by ``--fits``, so that start-up (imports, the first fit)
@@ -31,7 +32,9 @@ import cfa_tool
 data = pd.read_csv(sys.argv[2])
 model = open(sys.argv[3]).read()
 lean = sys.argv[4] == "lean"
-for _ in range(int(sys.argv[1])):
+if sys.argv[4] == "bootstrap":  # percentile intervals only, in this process: refits as the bootstrap runs them
+    cfa_tool.bootstrap(model, data, replications=int(sys.argv[1]), seed=1, bollen_stine=False, bca=False, workers=1)
+for _ in range(int(sys.argv[1]) if sys.argv[4] != "bootstrap" else 0):
     if lean:
         cfa_tool.fit(model, data, diagnostics=False, modification_indices=False)
     else:
@@ -48,8 +51,9 @@ def count(fits: int, script: Path, data: Path, model: Path, call: str) -> subpro
 
 def main() -> None:
     parser = argparse.ArgumentParser()
-    parser.add_argument("--call", choices=["lean", "default"], default="lean",
-                        help="lean: no modification indices or diagnostics; default: the full report and to_dict()")
+    parser.add_argument("--call", choices=["lean", "default", "bootstrap"], default="lean",
+                        help="lean: no modification indices or diagnostics; default: the full report and to_dict(); "
+                             "bootstrap: a bootstrap of 10 and of 10 + --fits resamples (percentile intervals, one process)")
     parser.add_argument("--items", type=int, default=9, help="9: Holzinger-Swineford (case 1); 30, 60...: run.py's simulated models")
     parser.add_argument("--fits", type=int, default=1000)
     args = parser.parse_args()
@@ -77,7 +81,8 @@ def main() -> None:
                 raise SystemExit(f"valgrind run with {n} fits failed:\n{err[-2000:]}")
             totals[n] = int(found.group(1).replace(",", ""))
     case = "case 1" if args.items == 9 else f"{args.items} items"
-    print(f"{case}, {args.call} call: {(totals[10 + args.fits] - totals[10]) / args.fits:,.0f} instructions per fit")
+    what = "bootstrap refit" if args.call == "bootstrap" else "fit"
+    print(f"{case}, {args.call} call: {(totals[10 + args.fits] - totals[10]) / args.fits:,.0f} instructions per {what}")
 
 
 if __name__ == "__main__":

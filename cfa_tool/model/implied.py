@@ -34,7 +34,7 @@ class ModelMatrices:
 
     @cached_property
     def A(self) -> np.ndarray:
-        m = self.B.shape[0]
+        m = self.B.shape[-1]
         if not self.B.any():
             return np.eye(m)
         return np.linalg.inv(np.eye(m) - self.B)
@@ -51,7 +51,7 @@ class ModelMatrices:
     @cached_property
     def _latent_covariance(self) -> np.ndarray:
         A = self.A
-        out = self.P.copy() if not self.B.any() else A @ self.P @ A.T
+        out = self.P.copy() if not self.B.any() else A @ self.P @ np.swapaxes(A, -1, -2)
         out.setflags(write=False)
         return out
 
@@ -65,7 +65,7 @@ class ModelMatrices:
     @cached_property
     def _implied_covariance(self) -> np.ndarray:
         G = self.G
-        out = G @ self.P @ G.T + self.T
+        out = G @ self.P @ np.swapaxes(G, -1, -2) + self.T
         out.setflags(write=False)
         return out
 
@@ -138,7 +138,13 @@ class StructuredModel:
         return int(starts[-1]), take, at, pieces
 
     def matrices(self, theta: np.ndarray, group: int = 0) -> ModelMatrices:
+        """A group's matrices at theta; at a stack of parameter vectors (R, q), stacks of matrices (R, ...)
+        (the implied moments and latent covariances of :class:`ModelMatrices` then have the leading axis too)."""
         size, take, at, pieces = self._layouts[group]
+        if theta.ndim == 2:
+            buffer = np.zeros((len(theta), size))
+            buffer[:, at] = (self._offset[group] + theta @ self._J[group].T)[:, take]
+            return ModelMatrices(*[buffer[:, a:b].reshape((len(theta), *shape)) for a, b, shape in pieces])
         buffer = np.zeros(size)
         buffer[at] = (self._offset[group] + self._J[group] @ theta)[take]
         return ModelMatrices(*[buffer[a:b].reshape(shape) for a, b, shape in pieces])

@@ -28,6 +28,7 @@ from cfa_tool.errors import CfaError, OptionError
 from cfa_tool.estimation.fiml import MissingDataLikelihood, fiml_baseline, fiml_log_likelihood
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
 from cfa_tool.data.patterns import pattern_data
+from cfa_tool.estimation.stacked import fit_stacked, stackable
 from cfa_tool.estimation.strategy import Alternative, search
 from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
 from cfa_tool.inference.standard_errors import observed_information, parameter_covariance, wald_inference
@@ -396,6 +397,27 @@ def replicate_fit(spec: Spec, moments: SampleMoments, start: np.ndarray | None =
         return _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_wanted)
 
 
+def replicate_fits(spec: Spec, samples: list[SampleMoments], start: np.ndarray | None, standard_errors: bool = False,
+                   fit_indices_wanted: bool = True, max_iterations: int = 200) -> list[ReplicateFit]:
+    """:func:`replicate_fit` of each sample from ``start``, the searches of a model that
+    :mod:`cfa_tool.estimation.stacked` covers run together in stacked arrays.  A replication the stacked
+    search does not bring to convergence is refitted alone by :func:`replicate_fit` (restarts, fallbacks
+    and all), so that it converges, or is counted as not converged, exactly as a single fit would."""
+    options = FitOptions(max_iterations=max_iterations, diagnostics=False)
+    table, model = model_structure(spec, None, False)
+    with blas_threads_for(len(spec.observed_names)):
+        if not samples or start is None or len(start) != table.n_free or not stackable(model):
+            return [_replicate_fit(spec, m, options, start, standard_errors, fit_indices_wanted) for m in samples]
+        groups = [ordered_moments(m, table.observed) for m in samples]
+        found = fit_stacked(model, np.array([gm.covariance for gm in groups]), start, max_iterations)
+        ok = np.flatnonzero(found.converged)
+        done = dict(zip(ok.tolist(), _replicate_results(table, model, [groups[r] for r in ok], found.theta[ok],
+                                                        found.value[ok], found.information[ok], standard_errors,
+                                                        fit_indices_wanted)))
+        return [done[r] if r in done else _replicate_fit(spec, m, options, start, standard_errors, fit_indices_wanted)
+                for r, m in enumerate(samples)]
+
+
 def _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_wanted) -> ReplicateFit:
     nan = float("nan")
     try:
@@ -405,31 +427,46 @@ def _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_w
         theta = np.full(table.n_free, nan) if start is None else np.asarray(start, dtype=float)
         values = model.entry_values(theta)
         return ReplicateFit(False, theta, values, np.full_like(values, np.nan), None, nan, nan, nan, nan)
-    table, model = est.table, est.model
-    values = model.entry_values(est.theta)
     if not est.converged:
+        values = est.model.entry_values(est.theta)
         return ReplicateFit(False, est.theta, values, np.full_like(values, np.nan), None, nan, nan, nan, nan)
-    mats = model.matrices(est.theta)
+    information = est.likelihood.evaluate(est.theta).information[None] if standard_errors else None
+    return _replicate_results(est.table, est.model, est.likelihood.groups, est.theta[None], np.array([est.value]),
+                              information, standard_errors, fit_indices_wanted)[0]
+
+
+def _replicate_results(table: ParameterTable, model: StructuredModel, groups: list[GroupMoments], theta: np.ndarray,
+                       value: np.ndarray, information: np.ndarray | None, standard_errors: bool,
+                       fit_indices_wanted: bool) -> list[ReplicateFit]:
+    """What each replication keeps of converged single-group fits to ``groups`` with discrepancies ``value``
+    at ``theta`` (R, q) (``information`` (R, q, q) the expected information there, wanted for standard
+    errors): the chi-square always, the other indices when wanted."""
+    nan = float("nan")
+    values = model.offset + theta @ model.J.T
+    mats = model.matrices(theta)
     codes, rows, cols = table.entry_arrays()
     std, _ = standardize_entries(mats, codes, rows, cols, values)
-    se = None
-    if standard_errors:
-        evaluation = est.likelihood.evaluate(est.theta)
-        try:
-            cov = parameter_covariance(evaluation.information, moments.n_obs)
-            se = wald_inference(values, model.J, cov).se
-        except np.linalg.LinAlgError:
-            se = np.full_like(values, np.nan)
-    chi = cfi = rmsea = srmr_ = nan
-    if fit_indices_wanted:
-        gm = est.likelihood.groups[0]
-        S, sigma = gm.covariance, mats.implied_covariance()
-        base_chi, base_df, loglik = normal_theory_parts([(S, sigma, gm.n_obs, None)])
-        f = fit_indices(chi_square=gm.n_obs * est.value, df=est.likelihood.n_statistics - table.n_free,
-                        baseline_chi_square=base_chi, baseline_df=base_df, n_obs=gm.n_obs, n_free=table.n_free,
-                        srmr=srmr_value(S, sigma), log_likelihood=loglik)
-        chi, cfi, rmsea, srmr_ = f.chi_square, f.cfi, f.rmsea, f.srmr
-    return ReplicateFit(True, est.theta, values, std, se, chi, cfi, rmsea, srmr_)
+    sigmas = mats.implied_covariance()
+    p = model.p
+    out = []
+    for r, gm in enumerate(groups):
+        se = None
+        if standard_errors:
+            try:
+                cov = parameter_covariance(information[r], gm.n_obs)
+                se = wald_inference(values[r], model.J, cov).se
+            except np.linalg.LinAlgError:
+                se = np.full(values.shape[1], nan)
+        chi, cfi, rmsea, srmr_ = gm.n_obs * float(value[r]), nan, nan, nan
+        if fit_indices_wanted:
+            S, sigma = gm.covariance, sigmas[r]
+            base_chi, base_df, loglik = normal_theory_parts([(S, sigma, gm.n_obs, None)])
+            f = fit_indices(chi_square=chi, df=p * (p + 1) // 2 - table.n_free, baseline_chi_square=base_chi,
+                            baseline_df=base_df, n_obs=gm.n_obs, n_free=table.n_free, srmr=srmr_value(S, sigma),
+                            log_likelihood=loglik)
+            chi, cfi, rmsea, srmr_ = f.chi_square, f.cfi, f.rmsea, f.srmr
+        out.append(ReplicateFit(True, theta[r], values[r], std[r], se, chi, cfi, rmsea, srmr_))
+    return out
 
 
 def moments_from_rows(rows: np.ndarray, names: tuple[str, ...], source: str = "<replication>",

@@ -9,7 +9,9 @@ Bollen-Stine (1992) p-value of the chi-square test resamples rows transformed
 so that the model holds exactly, Y = (X - m) S^-1/2 Sigma^1/2 + m, and counts
 the bootstrap chi-squares at least as large as the observed one.
 Replications that do not converge are counted and reported, never dropped
-silently.
+silently.  Resamples are refitted together, in batches (pipeline.continuous.replicate_fits);
+each resample's draw comes from its own seed, so the results do not depend on the batches or
+the worker processes.
 
 Under a sampling design whole clusters are resampled (each row its own cluster
 when none is given), independently within strata, and every row keeps its
@@ -33,14 +35,14 @@ from cfa_tool import options as check
 from cfa_tool.data.moments import numeric_columns, sample_moments
 from cfa_tool.errors import EstimationError, OptionError
 from cfa_tool.language.spec import Spec
-from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
+from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fits
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.method import WeightKind
 from cfa_tool.pipeline.inputs import (_fit_rows, converged, design_test, moments_for, ordinal_items_of,
                                       read_inputs_with_notes, with_design, without_exploratory_blocks)
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
-from cfa_tool.workflows.parallel import run_tasks
+from cfa_tool.workflows.parallel import REFITS_TOGETHER, run_tasks
 
 
 @dataclass(frozen=True)
@@ -82,19 +84,22 @@ class BootstrapResult(Presentable):
             "intervals": [i.to_dict() for i in self.intervals]})}
 
 
-def _replicate(task):
-    spec, rows, names, seed, start, design = task
+def _replicate(tasks: list) -> list:
+    """(converged, values, standardized values, chi-square) of each task's resample, refitted together."""
+    spec, _, names, _, start, _ = tasks[0]
+    fits = replicate_fits(spec, [_resample(rows, names, seed, design) for _, rows, _, seed, _, design in tasks], start,
+                          fit_indices_wanted=False)
+    return [(fit.converged, fit.values, fit.standardized, fit.chi_square) for fit in fits]
+
+
+def _resample(rows: np.ndarray, names: tuple[str, ...], seed: int, design):
     rng = np.random.default_rng(seed)
     if design is None:
-        sample = rows[rng.integers(0, len(rows), len(rows))]
-        moments = moments_from_rows(sample, names)
-    else:
-        picked = resampled_rows(design, rng)
-        w = design.weights[picked]
-        n_obs = int(round(w.sum())) if design.kind is WeightKind.FREQUENCY else len(picked)
-        moments = moments_from_rows(rows[picked], names, weights=w, n_obs=n_obs)
-    fit = replicate_fit(spec, moments, start=start, fit_indices_wanted=True)
-    return fit.converged, fit.values, fit.standardized, fit.chi_square
+        return moments_from_rows(rows[rng.integers(0, len(rows), len(rows))], names)
+    picked = resampled_rows(design, rng)
+    w = design.weights[picked]
+    n_obs = int(round(w.sum())) if design.kind is WeightKind.FREQUENCY else len(picked)
+    return moments_from_rows(rows[picked], names, weights=w, n_obs=n_obs)
 
 
 def sampling_units(design) -> list[list[np.ndarray]]:
@@ -232,7 +237,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     start = result.theta
     seeds = np.random.SeedSequence(seed).generate_state(2 * replications)
     tasks = [(spec, moments_rows, names, int(s), start, design) for s in seeds[:replications]]
-    draws = run_tasks(_replicate, tasks, workers, scheduler, progress)
+    draws = run_tasks(_replicate, tasks, workers, scheduler, progress, REFITS_TOGETHER, batched=True)
     ok = [d for d in draws if d[0]]
     if len(ok) < 2:
         raise EstimationError(f"{len(ok)} of {replications} bootstrap resamples could be fitted, too few for intervals; "
@@ -249,7 +254,8 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
         transformed = bollen_stine_rows(moments_rows, result.implied_covariance,
                                         design.weights if design is not None else None)
         btasks = [(spec, transformed, names, int(s), start, design) for s in seeds[replications:]]
-        bdraws = [d for d in run_tasks(_replicate, btasks, workers, scheduler, progress) if d[0]]
+        bdraws = [d for d in run_tasks(_replicate, btasks, workers, scheduler, progress, REFITS_TOGETHER, batched=True)
+                  if d[0]]
         converged_bs = len(bdraws)
         if bdraws:
             p_bs = float(np.mean([d[3] >= result.fit.chi_square for d in bdraws]))

@@ -26,14 +26,14 @@ import pandas as pd
 from cfa_tool import options as check
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import OptionError
-from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
+from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fits
 from cfa_tool.pipeline.inputs import _fit_rows, converged, ordinal_items_of, read_inputs_with_notes
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
-from cfa_tool.workflows.parallel import run_tasks
+from cfa_tool.workflows.parallel import REFITS_TOGETHER, run_tasks
 from cfa_tool.workflows.simulation import simulate_rows
 
 LEVELS = (0.95, 0.90)
@@ -87,11 +87,12 @@ class CutoffResult(Presentable):
             "cutoffs": [c.to_dict() for c in self.cutoffs]})}
 
 
-def _replicate(task):
-    spec, sigma, names, n, seed, start = task
-    rows = simulate_rows(sigma, n, np.random.default_rng(seed))
-    fit = replicate_fit(spec, moments_from_rows(rows, names), start=start)
-    return fit.converged, fit.cfi, fit.rmsea, fit.srmr
+def _replicate(tasks: list) -> list:
+    """(converged, CFI, RMSEA, SRMR) of each task's simulated data set, fitted together."""
+    spec, _, names, _, _, start = tasks[0]
+    samples = [moments_from_rows(simulate_rows(sigma, n, np.random.default_rng(seed)), names)
+               for _, sigma, _, n, seed, _ in tasks]
+    return [(fit.converged, fit.cfi, fit.rmsea, fit.srmr) for fit in replicate_fits(spec, samples, start)]
 
 
 N_STEPS = (2, 4, 8, 16)  # multiples of N tried when no cutoff exists at the data's N
@@ -239,7 +240,7 @@ def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.
     def sample(sigma: np.ndarray, n: int) -> np.ndarray:
         states = seeds.spawn(1)[0].generate_state(replications)
         tasks = [(spec, sigma, result.observed, n, int(s), result.theta) for s in states]
-        draws = run_tasks(_replicate, tasks, workers, scheduler, progress)
+        draws = run_tasks(_replicate, tasks, workers, scheduler, progress, REFITS_TOGETHER, batched=True)
         return np.array([d[1:] for d in draws if d[0]]).reshape(-1, len(INDICES))
 
     return sample

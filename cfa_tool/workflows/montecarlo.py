@@ -16,9 +16,9 @@ from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
 from cfa_tool.errors import OptionError
-from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fit
+from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fits
 from cfa_tool.language.spec import Spec
-from cfa_tool.workflows.parallel import run_tasks
+from cfa_tool.workflows.parallel import REFITS_TOGETHER, run_tasks
 from cfa_tool.workflows.simulation import population_from_spec, simulate_rows
 from cfa_tool.views import Presentable
 
@@ -86,11 +86,13 @@ class PowerCurve(Presentable):
                 "model_test_rejection_rate": [r.model_rejected for r in self.results] if first.ordinal else None}
 
 
-def _replicate(task) -> tuple[bool, np.ndarray, np.ndarray]:
-    spec, sigma, names, n, seed, start = task
-    rows = simulate_rows(sigma, n, np.random.default_rng(seed))
-    fit = replicate_fit(spec, moments_from_rows(rows, names), start=start, standard_errors=True, fit_indices_wanted=False)
-    return fit.converged, fit.theta, fit.se if fit.se is not None else np.full(0, np.nan)
+def _replicate(tasks: list) -> list[tuple[bool, np.ndarray, np.ndarray]]:
+    """(converged, estimates, standard errors) of each task's simulated data set, fitted together."""
+    spec, _, names, _, _, start = tasks[0]
+    samples = [moments_from_rows(simulate_rows(sigma, n, np.random.default_rng(seed)), names)
+               for _, sigma, _, n, seed, _ in tasks]
+    fits = replicate_fits(spec, samples, start, standard_errors=True, fit_indices_wanted=False)
+    return [(fit.converged, fit.theta, fit.se if fit.se is not None else np.full(0, np.nan)) for fit in fits]
 
 
 def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications: int = 500, seed: int = 1,
@@ -133,7 +135,7 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
                               scheduler, progress)
     tasks = [(spec, population.sigma, population.observed, n, int(s), population.theta)
              for n, stream in zip(sizes, streams) for s in stream.generate_state(replications)]
-    results = run_tasks(_replicate, tasks, workers, scheduler, progress)
+    results = run_tasks(_replicate, tasks, workers, scheduler, progress, REFITS_TOGETHER, batched=True)
     powers = tuple(_summary(population, n, replications, seed, alpha, results[k * replications:(k + 1) * replications])
                    for k, n in enumerate(sizes))
     return powers[0] if len(sizes) == 1 else PowerCurve(powers)

@@ -12,32 +12,41 @@ from cfa_tool import options as check
 from cfa_tool.errors import OptionError
 
 
+REFITS_TOGETHER = 250  # replications a workflow fits together (pipeline.continuous.replicate_fits): enough to
+# spread each stacked iteration's fixed cost, few enough that 1,000 resamples still keep two processes busy
+
+
 def default_workers() -> int:
     return max(1, len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else (os.cpu_count() or 1))
 
 
 def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, scheduler: str | None = None,
-              progress: Callable[..., None] | None = None, chunk: int = 25) -> list:
-    """fn(task) for every task, results in task order.  ``progress(0, more=n)`` announces the n tasks
-    before they start (a workflow may run several batches), and ``progress(k)`` is called as tasks finish."""
+              progress: Callable[..., None] | None = None, chunk: int = 25, batched: bool = False) -> list:
+    """fn(task) for every task, results in task order; with ``batched``, fn(list of up to ``chunk`` tasks)
+    gives the list of their results (a function that computes several tasks together).  ``progress(0,
+    more=n)`` announces the n tasks before they start (a workflow may run several batches), and
+    ``progress(k)`` is called as tasks finish."""
     workers = check.workers(workers)
     progress = _progress_function(progress)
     if progress:
         progress(0, more=len(tasks))
+    batches = [list(tasks[i : i + chunk]) for i in range(0, len(tasks), chunk)]
     if scheduler:
+        if batched:
+            return _run_on_cluster(fn, batches, scheduler, progress, batched=True)
         return _run_on_cluster(fn, tasks, scheduler, progress)
     workers = default_workers() if workers is None else workers
     if workers <= 1 or len(tasks) <= chunk:
         out = []
-        for task in tasks:
-            out.append(fn(task))
+        for batch in (batches if batched else [[task] for task in tasks]):
+            out.extend(fn(batch) if batched else [fn(batch[0])])
             if progress:
-                progress(1)
+                progress(len(batch))
         return out
-    batches = [list(tasks[i : i + chunk]) for i in range(0, len(tasks), chunk)]
     out = []
     with ProcessPoolExecutor(max_workers=workers, initializer=_one_blas_thread) as pool:
-        for results in pool.map(_run_batch, [fn] * len(batches), batches):
+        done = pool.map(fn, batches) if batched else pool.map(_run_batch, [fn] * len(batches), batches)
+        for results in done:
             out.extend(results)
             if progress:
                 progress(len(results))
@@ -75,7 +84,8 @@ def _run_batch(fn: Callable, batch: list) -> list:
     return [fn(task) for task in batch]
 
 
-def _run_on_cluster(fn: Callable, tasks: Sequence, address: str, progress) -> list:
+def _run_on_cluster(fn: Callable, tasks: Sequence, address: str, progress, batched: bool = False) -> list:
+    """fn of every task on the cluster; with ``batched``, ``tasks`` are batches and their results are joined."""
     try:
         from dask.distributed import Client, as_completed
     except ImportError:
@@ -87,8 +97,9 @@ def _run_on_cluster(fn: Callable, tasks: Sequence, address: str, progress) -> li
     try:
         futures = client.map(fn, list(tasks), pure=False)
         if progress:
-            for _ in as_completed(futures):
-                progress(1)
-        return client.gather(futures)
+            for future in as_completed(futures):
+                progress(len(future.result()) if batched else 1)
+        results = client.gather(futures)
+        return [r for batch in results for r in batch] if batched else results
     finally:
         client.close()

@@ -211,8 +211,8 @@ def test_bootstrap_cost_does_not_grow_with_rows_times_fits(monkeypatch, hs_data)
     from cfa_tool.workflows.bootstrap import bootstrap
 
     calls = []
-    original = B.replicate_fit
-    monkeypatch.setattr(B, "replicate_fit", lambda *a, **k: calls.append(1) or original(*a, **k))
+    original = B.replicate_fits
+    monkeypatch.setattr(B, "replicate_fits", lambda spec, samples, *a, **k: calls.extend(samples) or original(spec, samples, *a, **k))
     big = hs_data.sample(n=20_000, replace=True, random_state=1).reset_index(drop=True)
     bootstrap(THREE_FACTORS, big, replications=10, seed=1, workers=1, bollen_stine=False)
     assert len(calls) == 10

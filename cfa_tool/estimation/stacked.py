@@ -1,0 +1,321 @@
+"""Many fits of one model at once: the normal-theory ML discrepancy of R data sets minimised together.
+
+Bootstraps, Monte Carlo power and simulated cutoffs fit one model to many covariance matrices
+S_1 ... S_R.  Each iteration here computes, for every replication still running, one stacked
+array computation ((R, p, p) arrays through batched matrix products):
+
+    F_r(theta_r) = log|Sigma_r| + tr(S_r Sigma_r^-1) - log|S_r| - p      (Joreskog 1969)
+
+with its gradient, expected information (Browne 1974) and observed Hessian (Neudecker & Satorra
+1991) from the rank-two derivatives of :mod:`cfa_tool.model.rank_two` -- the same formulas as
+:class:`cfa_tool.estimation.ml.NormalLikelihood`, with a leading axis of replications.
+
+Each replication follows the steps that :func:`cfa_tool.estimation.optimizer.minimise` takes for
+one fit: Fisher scoring while the Newton decrement is at least 1e-2, then Newton steps with the
+observed Hessian where it is positive definite, each step shortened until the discrepancy falls by
+the Armijo share of the promised decrease, and convergence when the decrement g' H^-1 g falls below
+the same tolerance.  Replications never influence each other (every test and step length is per
+replication), so a replication's estimates do not depend on which others share its batch.
+
+What this module does not do is reported, not attempted: a replication whose sample covariance
+matrix is not positive definite, whose start or trial point leaves the region where Sigma is
+positive definite, whose line search fails or that does not converge within :data:`ITERATIONS` iterations is returned
+with ``converged`` False, and the caller refits it one at a time with the full search (restarts,
+quasi-Newton fallback and diagnosis of the failure) so that it is judged exactly as a single fit is.
+Only models it covers are given to it (:func:`stackable`): one group, no mean structure, no
+higher-order factors, no bounds on the parameters.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from cfa_tool.estimation.optimizer import CLOSED_FORM_NEWTON_BELOW, NEAR_MINIMUM
+from cfa_tool.model.implied import StructuredModel
+
+TOLERANCE = 1e-14  # on the Newton decrement, as for a single fit (optimizer.minimise)
+ARMIJO = 1e-4
+HALVINGS = 40
+ITERATIONS = 25  # a longer search is left to the caller (the few that need it cost more here, in lockstep)
+BLOCK = 64  # replications evaluated together: (BLOCK, q, q) arrays of a questionnaire model fit in the cache
+
+
+def stackable(model: StructuredModel) -> bool:
+    """Whether :func:`fit_stacked` covers the model: one group, no mean structure, no higher-order
+    factors and no bounds on any parameter."""
+    table = model.table
+    return (model.n_groups == 1 and not model.mean_structure and not model.higher_order
+            and not np.isfinite(table.lower).any() and not np.isfinite(table.upper).any())
+
+
+@dataclass(frozen=True)
+class StackedFits:
+    """The end of R searches: estimates (R, q), discrepancy (R,), expected information at the
+    estimates (R, q, q), whether each converged and its iterations.  Estimates of replications that
+    did not converge are where their search stopped (their start when it never moved)."""
+
+    theta: np.ndarray
+    value: np.ndarray
+    information: np.ndarray
+    converged: np.ndarray
+    iterations: np.ndarray
+
+
+class StackedNormal:
+    """The ML discrepancy of one model for a stack of sample covariance matrices (R, p, p)."""
+
+    def __init__(self, model: StructuredModel, covariances: np.ndarray):
+        if not stackable(model):
+            raise ValueError("the stacked discrepancy covers one group without means, higher-order factors or bounds")
+        self.model = model
+        self.S = np.asarray(covariances, dtype=float)
+        self.p, self.m = model.p, model.m
+        factor, self.usable = _cholesky(self.S)
+        self.logdet_S = 2.0 * np.log(np.diagonal(factor, axis1=1, axis2=2)).sum(axis=1)
+        self.usable &= np.isfinite(self.logdet_S)
+        self._J = model.active_J[0]
+        self._identity = model.identity_J[0]
+        basis = self._basis = model.bases[0]
+        nb = self.p + 2 * self.m
+        self._uv = basis.u * nb + basis.v
+        self._second = model.second_orders[0]
+
+    def _sigma(self, theta: np.ndarray):
+        """L (R, p, m), P (R, m, m), L P and Sigma = L P L' + T (R, p, p) at a stack of parameter vectors."""
+        mats = self.model.matrices(theta)
+        L, P = mats.L, mats.P
+        LP = L @ P
+        return L, P, LP, LP @ np.swapaxes(L, 1, 2) + mats.T
+
+    def value(self, theta: np.ndarray, rows: np.ndarray) -> np.ndarray:
+        """F of the replications ``rows`` (indices into the stack) at their ``theta`` (inf where Sigma is
+        not positive definite)."""
+        _, _, _, sigma = self._sigma(theta)
+        factor, ok = _cholesky(sigma)
+        logdet = 2.0 * np.log(np.abs(np.diagonal(factor, axis1=1, axis2=2))).sum(axis=1)
+        # tr(S Sigma^-1) = ||F^-1 S^1/2||^2 is not cheaper than a solve at these sizes: solve Sigma X = S
+        trace = np.trace(np.linalg.solve(np.where(ok[:, None, None], sigma, np.eye(self.p)), self.S[rows]),
+                         axis1=1, axis2=2)
+        out = logdet + trace - self.logdet_S[rows] - self.p
+        return np.where(ok & np.isfinite(out), out, np.inf)
+
+    def evaluate(self, theta: np.ndarray, rows: np.ndarray, observed: bool = True):
+        """(value, gradient, expected information, observed Hessian or None, ok) of the replications
+        ``rows`` at their ``theta``; entries of replications whose Sigma is not positive definite
+        (ok False) are meaningless.  Computed in blocks of :data:`BLOCK` replications, whose arrays stay
+        in the processor's cache."""
+        if len(theta) <= BLOCK:
+            return self._evaluate(theta, rows, observed)
+        parts = [self._evaluate(theta[k:k + BLOCK], rows[k:k + BLOCK], observed) for k in range(0, len(theta), BLOCK)]
+        return tuple(None if parts[0][i] is None else np.concatenate([part[i] for part in parts]) for i in range(5))
+
+    def _evaluate(self, theta: np.ndarray, rows: np.ndarray, observed: bool):
+        L, P, LP, sigma = self._sigma(theta)
+        R, p, m = len(theta), self.p, self.m
+        factor, ok = _cholesky(sigma)
+        if not ok.all():
+            sigma = np.where(ok[:, None, None], sigma, np.eye(p))
+        logdet = 2.0 * np.log(np.abs(np.diagonal(factor, axis1=1, axis2=2))).sum(axis=1)
+        inverse = np.linalg.inv(sigma)
+        inverse = 0.5 * (inverse + np.swapaxes(inverse, 1, 2))
+        S = self.S[rows]
+        SI = S @ inverse
+        value = logdet + np.trace(SI, axis1=1, axis2=2) - self.logdet_S[rows] - p
+        ok &= np.isfinite(value)
+        W = inverse - inverse @ SI  # Sigma^-1 (Sigma - S) Sigma^-1
+        V = np.zeros((R, p, p + 2 * m))  # [I, C', G] with C' = G P (rank_two.basis_vectors)
+        V[:, np.arange(p), np.arange(p)] = 1.0
+        V[:, :, p:p + m] = LP
+        V[:, :, p + m:] = L
+        Vt = np.swapaxes(V, 1, 2)
+        K = (Vt @ (inverse @ V)).reshape(R, -1)
+        Q = (Vt @ (W @ V)).reshape(R, -1)
+        b = self._basis
+        take = np.take  # gathers along one axis: several times faster than fancy indexing with 2-d index arrays
+        gradient = 2.0 * b.c * take(Q, self._uv, axis=1)
+        Kuv = take(K, b.uv, axis=1)
+        Kvu = np.swapaxes(Kuv, 1, 2)
+        Kuu, Kvv = take(K, b.uu, axis=1), take(K, b.vv, axis=1)
+        information = Kuu * Kvv
+        information += Kuv * Kvu
+        information *= 2.0 * b.cc
+        hessian = None
+        if observed:
+            cross = take(Q, b.vu, axis=1) * Kuv
+            cross += take(Q, b.vv, axis=1) * Kuu
+            cross += take(Q, b.uu, axis=1) * Kvv
+            cross += take(Q, b.uv, axis=1) * Kvu
+            cross *= b.cc
+            hessian = information - cross - np.swapaxes(cross, 1, 2) + self._second_derivatives(W, P, Q)
+        if not self._identity:
+            J = self._J
+            gradient = gradient @ J
+            information = J.T @ information @ J
+            if hessian is not None:
+                hessian = J.T @ hessian @ J
+        if hessian is not None:
+            hessian = 0.5 * (hessian + np.swapaxes(hessian, 1, 2))
+        return value, gradient, information, hessian, ok
+
+    def _second_derivatives(self, W: np.ndarray, P: np.ndarray, Q: np.ndarray) -> np.ndarray:
+        """tr(W d2Sigma / de de') for every pair of active entries (rank_two.second_derivative_contraction
+        with a leading axis: M L is the block Q[:p, p+m:] of Q, since V starts with I and ends with L)."""
+        layout, R, p, m = self._second, len(W), self.p, self.m
+        out = np.zeros((R, layout.size * layout.size))
+        take = np.take
+        out[:, layout.load_load] = 2.0 * take(W.reshape(R, -1), layout.m_at, axis=1) * take(P.reshape(R, -1), layout.p_at, axis=1)
+        if len(layout.load_cov):
+            ML = Q.reshape(R, p + 2 * m, p + 2 * m)[:, :p, p + m:].reshape(R, -1)
+            term = take(ML, layout.first, axis=1) * layout.first_weight + take(ML, layout.second, axis=1) * layout.second_weight
+            out[:, layout.load_cov] = term
+            out[:, layout.cov_load] = term
+        return out.reshape(R, layout.size, layout.size)
+
+
+def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarray, max_iterations: int = 200) -> StackedFits:
+    """Minimise the ML discrepancy of ``model`` for each covariance matrix of the stack (R, p, p) from
+    the same ``start`` (see the module docstring for the steps and what is left to the caller), within
+    ``max_iterations`` or :data:`ITERATIONS`, whichever is fewer."""
+    max_iterations = min(max_iterations, ITERATIONS)
+    objective = StackedNormal(model, covariances)
+    R, q = len(objective.S), len(start)
+    theta = np.tile(np.asarray(start, dtype=float), (R, 1))
+    value = np.full(R, np.inf)
+    information = np.full((R, q, q), np.nan)
+    converged = np.zeros(R, dtype=bool)
+    iterations = np.zeros(R, dtype=int)
+    running = np.flatnonzero(objective.usable)
+    if len(running) == 0:
+        return StackedFits(theta, value, information, converged, iterations)
+    f, g, H, N, ok = objective.evaluate(theta[running], running)
+    running, f, g, H, N = running[ok], f[ok], g[ok], H[ok], N[ok]  # a start outside the region: left to the caller
+    value[running], information[running] = f, H
+    previous = np.full(len(running), np.inf)
+    for it in range(1, max_iterations + 1):
+        if len(running) == 0:
+            break
+        iterations[running] = it - 1
+        # as optimizer.minimise: Newton's step with the observed Hessian first when the last decrement was
+        # small, else scoring's, switching to Newton's when scoring's decrement is small; Newton's only
+        # where the Hessian is positive definite
+        n = len(running)
+        newton, newton_ok = np.full((n, q), np.nan), np.zeros(n, dtype=bool)
+        tried = (previous > NEAR_MINIMUM) & (previous < CLOSED_FORM_NEWTON_BELOW)
+        if tried.any():
+            newton[tried], newton_ok[tried] = _solve(N[tried], -g[tried])
+        newton_first = tried & newton_ok
+        scoring, scoring_ok = np.full((n, q), np.nan), np.zeros(n, dtype=bool)
+        scored = ~newton_first
+        if scored.any():
+            scoring[scored], scoring_ok[scored] = _solve(H[scored], -g[scored], positive_definite=False)
+        step = np.where(newton_first[:, None], newton, scoring)
+        decrement = -np.einsum("ij,ij->i", g, step)
+        done = (newton_first | scoring_ok) & (decrement < TOLERANCE)
+        converged[running[done]] = True
+        # Newton's decrement falls quadratically: when the next one is far below the tolerance, the full
+        # step ends the search (optimizer.minimise)
+        last_step = newton_first & (decrement**3 < 1e-2 * TOLERANCE * previous**2)
+        late = scored & scoring_ok & ~tried & ~done & (decrement < CLOSED_FORM_NEWTON_BELOW)
+        if late.any():
+            newton[late], newton_ok[late] = _solve(N[late], -g[late])
+        switch = scored & newton_ok
+        step = np.where(switch[:, None], newton, step)
+        go = ~done & (newton_first | scoring_ok) & np.isfinite(step).all(axis=1)
+        previous = decrement
+        # keep the replications still searching
+        running, f, g, H, step, previous, last_step = (a[go] for a in (running, f, g, H, step, previous, last_step))
+        if len(running) == 0:
+            break
+        trial, t, found = _line_search(objective, theta[running], f, g, step, running)
+        running, trial, t, previous, last_step = (a[found] for a in (running, trial, t, previous, last_step))
+        f, g, H, N, ok = objective.evaluate(trial, running)
+        running, trial, t, previous, last_step, f, g, H, N = (
+            a[ok] for a in (running, trial, t, previous, last_step, f, g, H, N))
+        theta[running], value[running], information[running] = trial, f, H
+        iterations[running] = it
+        finished = last_step & (t == 1.0)
+        converged[running[finished]] = True
+        keep = ~finished
+        running, f, g, H, N, previous = (a[keep] for a in (running, f, g, H, N, previous))
+    return StackedFits(theta, value, information, converged, iterations)
+
+
+def _line_search(objective: StackedNormal, theta: np.ndarray, f0: np.ndarray, g: np.ndarray, step: np.ndarray,
+                 rows: np.ndarray):
+    """Backtracking, per replication, until F falls by the Armijo share of the decrease its step
+    promises (steepest descent where the step is not a descent direction): (trial points, step
+    lengths, found)."""
+    slope = np.einsum("ij,ij->i", g, step)
+    uphill = slope >= 0
+    if uphill.any():
+        step = np.where(uphill[:, None], -g, step)
+        slope = np.einsum("ij,ij->i", g, step)
+    t = np.ones(len(theta))
+    trial = theta + step
+    found = np.zeros(len(theta), dtype=bool)
+    pending = np.arange(len(theta))
+    for _ in range(HALVINGS):
+        f = objective.value(trial[pending], rows[pending])
+        accept = np.isfinite(f) & (f <= f0[pending] + ARMIJO * t[pending] * slope[pending])
+        found[pending[accept]] = True
+        pending = pending[~accept]
+        if len(pending) == 0:
+            break
+        t[pending] *= 0.5
+        trial[pending] = theta[pending] + t[pending, None] * step[pending]
+    return trial, t, found
+
+
+def _cholesky(A: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Lower Cholesky factors of a stack of symmetric matrices and which of them are positive definite
+    (the others get the identity).  numpy factors a whole stack or raises at the first matrix that is
+    not positive definite; then the stack is factored column by column (the Cholesky-Banachiewicz
+    recurrence, Golub & Van Loan 2013, sec. 4.2), each matrix dropping out at its first pivot that is
+    not positive."""
+    try:
+        factor = np.linalg.cholesky(A)
+        ok = np.isfinite(np.diagonal(factor, axis1=1, axis2=2)).all(axis=1)
+        if ok.all():
+            return factor, ok
+    except np.linalg.LinAlgError:
+        pass
+    R, n, _ = A.shape
+    factor = np.zeros_like(A)
+    ok = np.ones(R, dtype=bool)
+    for j in range(n):
+        row = factor[:, j, :j]
+        pivot = A[:, j, j] - np.einsum("rk,rk->r", row, row)
+        positive = pivot > 0  # False for NaN too
+        ok &= positive
+        root = np.sqrt(np.where(positive, pivot, 1.0))
+        factor[:, j, j] = root
+        if j + 1 < n:
+            factor[:, j + 1:, j] = (A[:, j + 1:, j] - np.einsum("rik,rk->ri", factor[:, j + 1:, :j], row)) / root[:, None]
+    factor[~ok] = np.eye(n)
+    return factor, ok
+
+
+def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True) -> tuple[np.ndarray, np.ndarray]:
+    """Solutions of H_r x_r = b_r for a stack of symmetric matrices scaled to unit diagonal (as
+    numerics.linalg.scaled_solve does for one), and which of them were found: with ``positive_definite``
+    only those of positive definite H_r (checked by a Cholesky factorisation), otherwise those of
+    nonsingular H_r; the solutions not found are NaN."""
+    d = 1.0 / np.sqrt(np.maximum(np.abs(np.diagonal(H, axis1=1, axis2=2)), 1e-300))
+    scaled = H * (d[:, :, None] * d[:, None, :])
+    if positive_definite:
+        ok = _cholesky(scaled)[1]
+    else:
+        ok = np.isfinite(scaled).all(axis=(1, 2))
+    x = np.full_like(b, np.nan)
+    if ok.any():
+        try:
+            x[ok] = np.linalg.solve(scaled[ok], (d * b)[ok][:, :, None])[:, :, 0] * d[ok]
+        except np.linalg.LinAlgError:  # a singular one (numpy stops at the first): one by one
+            for r in np.flatnonzero(ok):
+                try:
+                    x[r] = np.linalg.solve(scaled[r], d[r] * b[r]) * d[r]
+                except np.linalg.LinAlgError:
+                    ok[r] = False
+    return x, ok & np.isfinite(x).all(axis=1)

@@ -1,0 +1,124 @@
+"""Many fits at once (estimation.stacked, pipeline.continuous.replicate_fits) against one fit at a time and
+against a general-purpose minimiser of the ML discrepancy written here."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from cfa_tool.estimation.stacked import fit_stacked, stackable
+from cfa_tool.language import parse_model
+from cfa_tool.pipeline.continuous import model_structure, moments_from_rows, replicate_fit, replicate_fits
+from tests.conftest import THREE_FACTORS
+
+NAMES = tuple(f"x{i}" for i in range(1, 10))
+
+
+@pytest.fixture(scope="module")
+def resamples(hs_data, hs_three):
+    rows = hs_data[list(NAMES)].to_numpy(float)
+    rng = np.random.default_rng(20)
+    return [moments_from_rows(rows[rng.integers(0, len(rows), len(rows))], NAMES) for _ in range(60)]
+
+
+def _same(a, b, tol: float = 1e-6) -> None:
+    assert a.converged == b.converged
+    if not a.converged:
+        return
+    for name in ("theta", "values", "standardized"):
+        np.testing.assert_allclose(getattr(a, name), getattr(b, name), rtol=1e-9, atol=tol, err_msg=name)
+    if a.se is not None or b.se is not None:
+        np.testing.assert_allclose(a.se, b.se, rtol=0, atol=tol)
+    for name in ("chi_square", "cfi", "rmsea", "srmr"):
+        assert getattr(a, name) == pytest.approx(getattr(b, name), abs=tol, nan_ok=True), name
+
+
+def test_stacked_refits_equal_one_fit_at_a_time(resamples, hs_three):
+    spec = parse_model(THREE_FACTORS)
+    together = replicate_fits(spec, resamples, hs_three.theta, standard_errors=True)
+    alone = [replicate_fit(spec, m, start=hs_three.theta, standard_errors=True) for m in resamples]
+    assert sum(f.converged for f in together) == len(resamples)
+    for a, b in zip(together, alone):
+        _same(a, b)
+    # the resamples really were fitted in stacked arrays, not one by one
+    table, model = model_structure(spec, None, False)
+    assert stackable(model)
+    found = fit_stacked(model, np.array([m.covariance for m in resamples]), hs_three.theta)
+    assert found.converged.all() and (found.iterations > 0).all()
+
+
+def test_a_replication_does_not_depend_on_the_others_in_its_batch(resamples, hs_three):
+    spec = parse_model(THREE_FACTORS)
+    whole = replicate_fits(spec, resamples, hs_three.theta, standard_errors=True)
+    pieces = [f for k in range(0, len(resamples), 7)
+              for f in replicate_fits(spec, resamples[k:k + 7], hs_three.theta, standard_errors=True)]
+    for a, b in zip(whole, pieces):
+        _same(a, b, tol=1e-12)
+
+
+def _discrepancy(S: np.ndarray):
+    """F_ML = log|Sigma| + tr(S Sigma^-1) - log|S| - p (Joreskog 1969) of the three-factor model, written
+    here from the model's definition (markers x1, x4, x7 fixed to 1), for a general-purpose minimiser."""
+    p = 9
+    logdet_S = np.linalg.slogdet(S)[1]
+
+    def sigma_of(x):
+        L = np.zeros((9, 3))
+        L[[0, 3, 6], [0, 1, 2]] = 1.0
+        L[[1, 2, 4, 5, 7, 8], [0, 0, 1, 1, 2, 2]] = x[:6]
+        Phi = np.array([[x[6], x[9], x[10]], [x[9], x[7], x[11]], [x[10], x[11], x[8]]])
+        return L @ Phi @ L.T + np.diag(x[12:21])
+
+    def f(x):
+        sigma = sigma_of(x)
+        sign, logdet = np.linalg.slogdet(sigma)
+        if sign <= 0:
+            return 1e10
+        return logdet + np.trace(np.linalg.solve(sigma, S)) - logdet_S - p
+
+    return f, sigma_of
+
+
+def test_stacked_refits_reach_the_minimum_a_general_minimiser_finds(resamples, hs_three):
+    """scipy's BFGS on the discrepancy written above reaches the same minimum and implied covariance."""
+    from scipy.optimize import minimize
+
+    spec = parse_model(THREE_FACTORS)
+    table, model = model_structure(spec, None, False)
+    fits = replicate_fits(spec, resamples[:3], hs_three.theta)
+    for m, fit in zip(resamples[:3], fits):
+        f, sigma_of = _discrepancy(m.covariance)
+        x0 = np.concatenate([np.full(6, 1.0), np.full(3, 0.5), np.zeros(3), np.diag(m.covariance) / 2])
+        found = minimize(f, x0, method="BFGS", options={"gtol": 1e-9, "maxiter": 5000})
+        assert fit.converged
+        assert fit.chi_square / m.n_obs == pytest.approx(found.fun, rel=1e-7, abs=1e-9)
+        ours = model.matrices(fit.theta).implied_covariance()
+        np.testing.assert_allclose(ours, sigma_of(found.x), atol=1e-4)
+
+
+def test_replications_that_fail_fail_as_they_do_one_at_a_time(hs_three):
+    """Resamples of 11 rows: some have a singular covariance matrix, some leave the region or do not
+    converge; each is judged as the one-at-a-time fit judges it."""
+    spec = parse_model(THREE_FACTORS)
+    from tests.conftest import holzinger_swineford
+
+    rows = holzinger_swineford()[list(NAMES)].to_numpy(float)
+    rng = np.random.default_rng(3)
+    samples = [moments_from_rows(rows[rng.choice(len(rows), 12, replace=False)][rng.integers(0, 12, 12)], NAMES)
+               for _ in range(40)]
+    together = replicate_fits(spec, samples, hs_three.theta, fit_indices_wanted=True)
+    alone = [replicate_fit(spec, m, start=hs_three.theta) for m in samples]
+    converged = [f.converged for f in alone]
+    assert 0 < sum(converged) < len(samples)  # the case has failures to count
+    assert [f.converged for f in together] == converged
+    for a, b in zip(together, alone):
+        _same(a, b)
+
+
+def test_models_the_stacked_search_does_not_cover_are_fitted_one_at_a_time(resamples, hs_three):
+    spec = parse_model(THREE_FACTORS + "factor g: visual, textual, speed\n")
+    table, model = model_structure(spec, None, False)
+    assert not stackable(model)
+    together = replicate_fits(spec, resamples[:5], None)
+    for m, a in zip(resamples[:5], together):
+        _same(a, replicate_fit(spec, m), tol=0)

@@ -1,0 +1,63 @@
+"""Workflows that refit one model many times fit their replications together (pipeline.continuous.replicate_fits):
+what they report for a seed must not depend on how many replications share a batch or on the worker processes."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+import cfa_tool.workflows.bootstrap as bootstrap_module
+import cfa_tool.workflows.cutoffs as cutoffs_module
+import cfa_tool.workflows.montecarlo as montecarlo_module
+from cfa_tool.language import parse_model
+from tests.conftest import THREE_FACTORS
+
+POPULATION = """
+factor f: y1, y2, y3, y4
+factor g: y5, y6, y7, y8
+"""
+
+
+def _runs(monkeypatch, module, run):
+    """The workflow's result with the default batches in one process, small batches in one process and
+    small batches on two worker processes."""
+    out = [run(1)]
+    monkeypatch.setattr(module, "REFITS_TOGETHER", 7)
+    out += [run(1), run(2)]
+    return out
+
+
+def test_bootstrap_does_not_depend_on_batches_or_workers(monkeypatch, hs_data):
+    results = _runs(monkeypatch, bootstrap_module, lambda workers: bootstrap_module.bootstrap(
+        THREE_FACTORS, hs_data, replications=30, seed=8, workers=workers).to_dict()["result"])
+    assert results[0]["converged"] == 30
+    assert results[0] == results[1] == results[2]
+
+
+def test_power_curve_does_not_depend_on_batches_or_workers(monkeypatch):
+    spec = parse_model(POPULATION)
+    results = _runs(monkeypatch, montecarlo_module, lambda workers: montecarlo_module.monte_carlo_power(
+        spec, "60,150", replications=20, seed=3, workers=workers).to_dict())
+    assert results[0]["converged"] == [20, 20]
+    assert results[0] == results[1] == results[2]
+
+
+def test_cutoffs_do_not_depend_on_batches_or_workers(monkeypatch, hs_data):
+    results = _runs(monkeypatch, cutoffs_module, lambda workers: cutoffs_module.cutoffs(
+        THREE_FACTORS, hs_data, replications=20, seed=2, workers=workers).to_dict()["result"])
+    assert results[0] == results[1] == results[2]
+
+
+def test_power_simulation_counts_what_one_fit_at_a_time_counts(monkeypatch):
+    """Small samples: replications that fail in the stacked search are refitted alone, so the count of
+    converged replications and every summary equal those of one fit at a time."""
+    from cfa_tool.pipeline import continuous
+
+    spec = parse_model(POPULATION)
+    together = montecarlo_module.monte_carlo_power(spec, 25, replications=40, seed=12, workers=1)
+    monkeypatch.setattr(continuous, "stackable", lambda model: False)
+    alone = montecarlo_module.monte_carlo_power(spec, 25, replications=40, seed=12, workers=1)
+    assert together.converged == alone.converged < 40  # the case has failures to count
+    for a, b in zip(together.parameters, alone.parameters):
+        for name in ("mean_estimate", "sd_estimate", "mean_se", "coverage", "power"):
+            assert getattr(a, name) == pytest.approx(getattr(b, name), rel=1e-7, abs=1e-9), (a.label, name)
