@@ -157,8 +157,10 @@ class FitMethod:
         """The estimation in one line, as the report's status line and the JSON's ``estimator`` give it."""
         if self.ordinal:
             if self.thresholds:
-                return (f"{self.weighting.label} least squares on thresholds and polychoric correlations (ordinal items, "
-                        f"{groups} groups), robust standard errors")
+                beside = (", with the means, variances and polyserial correlations of continuous items"
+                          if self.items is Items.MIXED else "")
+                return (f"{self.weighting.label} least squares on thresholds and polychoric correlations (ordinal items"
+                        f"{beside}, {groups} groups), robust standard errors")
             extra = ", with polyserial correlations for continuous items" if self.items is Items.MIXED else ""
             return f"{self.weighting.label} least squares on polychoric correlations (ordinal items{extra}), robust standard errors"
         text = self.estimator.label

@@ -468,16 +468,15 @@ def check_ordinal_options(fit_options) -> bool:
 
 def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, reference_group: str | None,
                    ordinal_items: set[str], pairwise: bool = False) -> tuple[list, list[str]]:
-    """Per-group ordinal moments (every indicator must then be ordinal), with notes on rows left out:
-    the ordinal counterpart of :func:`moments_for`; ``pairwise`` keeps rows with gaps (pairwise present)."""
-    continuous = sorted(x for x in spec.observed_names if x not in ordinal_items)
-    if continuous:
-        raise OptionError(f"with groups every indicator must be ordinal; '{continuous[0]}' is not (declare it with "
-                          f"'ordinal' or --ordinal, or fit the groups as continuous items)")
+    """Per-group ordinal moments (items not in ``ordinal_items`` are continuous ones beside them), with notes on
+    rows left out: the ordinal counterpart of :func:`moments_for`; ``pairwise`` keeps rows with gaps (pairwise
+    present)."""
     _check_group_column(spec, group)
     from cfa_tool.data.groups import split_ordinal_moments
 
-    groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise)
+    continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
+    groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise,
+                                             continuous)
     return groups, _no_group_notes(no_group, group) + label_notes(frame, group)
 
 

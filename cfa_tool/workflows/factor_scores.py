@@ -558,11 +558,11 @@ def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, 
         return [one_group_ordinal_inputs(mats, table.observed, table.latent, moments)], [None]
     from cfa_tool.model.implied import StructuredModel
     from cfa_tool.model.parameters import build_parameter_table
+    from cfa_tool.pipeline.ordinal import threshold_counts
 
     groups, _ = api.ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise)
     labels = tuple(label for label, _ in groups)
-    n_thresholds = {x: len(t) for x, t in zip(spec.observed_names, groups[0][1].thresholds)}
-    table = build_parameter_table(spec, labels, ordinal=n_thresholds)
+    table = build_parameter_table(spec, labels, ordinal=threshold_counts(groups[0][1]))
     if table.n_free != len(result.theta):
         raise AssertionError("the fitted parameters do not match the model's table")
     return list(ordinal_score_inputs(_Fitted(table, StructuredModel(table), result.theta), groups)), list(labels)
