@@ -170,6 +170,16 @@ def _first_step_thresholds(moments, order: list[int]) -> tuple[EstimateRow, ...]
     return tuple(rows)
 
 
+def correlations_in_order(moments, observed: tuple[str, ...]) -> tuple[np.ndarray, np.ndarray]:
+    """(R, Gamma): the correlation matrix of ``moments`` with its items in the order ``observed``, and the
+    asymptotic covariance of its correlations below the diagonal in np.tril_indices order."""
+    order = [moments.names.index(n) for n in observed]
+    full_pairs = np.tril_indices(len(moments.names), -1)
+    index_of = {(int(a), int(b)): k for k, (a, b) in enumerate(zip(*full_pairs))}
+    take = [index_of[tuple(sorted((order[i], order[j]), reverse=True))] for i, j in zip(*np.tril_indices(len(order), -1))]
+    return moments.correlations[np.ix_(order, order)], moments.gamma[np.ix_(take, take)]
+
+
 def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weighting.DIAGONAL) -> FitResult:
     """Least squares on polychoric correlations, with robust standard errors and adjusted tests."""
     method = _check_method(method)
@@ -181,12 +191,8 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
         raise OptionError(f"the model has {table.n_free} free parameters but {p} ordinal items give only {n_corr} "
                           f"correlations, so it cannot be identified")
     order = [moments.names.index(n) for n in table.observed]
-    R = moments.correlations[np.ix_(order, order)]
-    full_pairs = np.tril_indices(len(moments.names), -1)
-    index_of = {(int(a), int(b)): k for k, (a, b) in enumerate(zip(*full_pairs))}
+    R, gamma = correlations_in_order(moments, table.observed)
     pairs = np.tril_indices(p, -1)
-    take = [index_of[tuple(sorted((order[i], order[j]), reverse=True))] for i, j in zip(*pairs)]
-    gamma = moments.gamma[np.ix_(take, take)]
     statistics = [group_statistics(R[pairs], gamma, moments.n_obs, method is Weighting.DIAGONAL)]
     weights = statistics[0].weights
     model = StructuredModel(table)
