@@ -500,9 +500,12 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                                          implied_mean=None, normality=None, reliability=tuple(factors), htmt=tuple(htmt)))
     per_group = [_pair_rows(m, list(range(p))) for m in moments]
     total_pairs = tuple((a, b, sum(rows[k][2] for rows in per_group)) for k, (a, b, _) in enumerate(per_group[0]))
+    per_group_counts = [_category_counts(m, list(range(p))) for m in moments]  # every group has every category
+    total_counts = tuple(tuple((value, sum(counts[j][c][1] for counts in per_group_counts))
+                               for c, (value, _) in enumerate(per_group_counts[0][j])) for j in range(p))
     total = DataSummary(moments[0].source, sum(m.rows_read for m in moments), dropped, n, table.observed,
                         tuple(float(v) for v in sum(m.n_obs * m.means for m in moments) / n),
-                        tuple(float(v) for v in moments[0].sds), pair_rows=total_pairs)
+                        tuple(float(v) for v in moments[0].sds), categories=total_counts, pair_rows=total_pairs)
     items = Items.MIXED if moments[0].continuous else Items.ORDINAL
     return fit_result(spec=spec, method=_fit_method(method, items, thresholds=True,
                                                     pairwise=all(m.pairwise for m in moments)), converged=est.converged,
