@@ -54,11 +54,16 @@ def _groups(a: pd.DataFrame, b: pd.DataFrame) -> pd.DataFrame:
     return pd.concat([a.assign(site="north"), b.assign(site="south")], ignore_index=True)
 
 
-def test_one_group_equals_the_one_group_mixed_fit():
+@pytest.mark.parametrize("gaps", [False, True])
+def test_one_group_equals_the_one_group_mixed_fit(gaps):
     data = _draw(900, 1)
+    if gaps:  # pairwise present rows: the means and variances come from the rows that answered each item
+        rng = np.random.default_rng(2)
+        for column in ("q2", "y1", "y3"):
+            data.loc[rng.random(len(data)) < 0.15, column] = np.nan
     one = cfa_tool.fit(MODEL, data)
     spec = load_spec(MODEL)
-    moments = ordinal_moments(data, spec.observed_names, "data", frozenset({"y1", "y2", "y3"}))
+    moments = ordinal_moments(data, spec.observed_names, "data", frozenset({"y1", "y2", "y3"}), pairwise=True)
     est = estimate_ordinal_groups(spec, [("all", moments)], FitOptions())
     mine = assess_ordinal_groups(spec, [("all", moments)], est, FitOptions(), "group")
     assert mine.fit.df == one.fit.df
@@ -74,7 +79,7 @@ def test_one_group_equals_the_one_group_mixed_fit():
     assert compared >= 15
     # a continuous item keeps its metric: its unstandardized loading is the one-group (SD-unit) one times its SD
     sd = float(data["y2"].std(ddof=0))
-    sd1 = float(data["y1"].std(ddof=0))
+    sd1 = float(data["y1"].dropna().std(ddof=0))
     ratio = {r.variables: r.estimate for r in mine.estimates if r.kind == "loading"}
     assert ratio[("f2", "y2")] == pytest.approx(theirs[("loading", ("f2", "y2"))].estimate * sd / sd1, rel=1e-5)
 
@@ -179,3 +184,21 @@ def test_posterior_means_of_mixed_items_in_groups_are_the_integrals():
         row = data.iloc[i]
         expected = _posterior_mean(row, values, row["site"], items)
         assert result.table["f_posterior_mean"].iloc[i] == pytest.approx(expected, abs=1e-6), i
+
+
+def test_compare_mixed_models_in_groups_and_in_one_group():
+    # the general model lists the items in another order, so its statistics (thresholds, the continuous items'
+    # means and variances, correlations) are reordered for the nesting check
+    data = _groups(_draw(600, 10), _draw(500, 11, factor_mean=0.3))
+    restricted = MODEL + "uncorrelated f1, f2\n"
+    general = "factor f2: y1, y2, y3\nfactor f1: q1, q2, q3\nordinal q1, q2, q3\n"
+    for group, extra_df in ((None, 1), ("site", 2)):
+        frame = data if group is not None else data.drop(columns="site")
+        result = cfa_tool.compare([restricted, general], frame, group=group)
+        assert len(result.tests) == 1 and result.tests[0].df_difference == extra_df
+        assert result.tests[0].p_value < 1e-6  # the factors correlate .4 in both groups
+        if group is None:  # one group: the same statistics and parameter counts as 'fit'
+            for text, fitted in zip((restricted, general), result.results):
+                own = cfa_tool.fit(text, frame)
+                assert fitted.fit.chi_square == pytest.approx(own.fit.chi_square, rel=1e-7)
+                assert fitted.fit.n_free_parameters == own.fit.n_free_parameters
