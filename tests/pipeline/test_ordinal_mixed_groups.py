@@ -202,3 +202,26 @@ def test_compare_mixed_models_in_groups_and_in_one_group():
                 own = cfa_tool.fit(text, frame)
                 assert fitted.fit.chi_square == pytest.approx(own.fit.chi_square, rel=1e-7)
                 assert fitted.fit.n_free_parameters == own.fit.n_free_parameters
+
+
+def test_asymptotic_covariance_of_a_continuous_items_mean_and_variance():
+    # the sample mean and variance (divisor N) of an item: N Var(m) -> mu_2, N Cov(m, s^2) -> mu_3,
+    # N Var(s^2) -> mu_4 - mu_2^2 (the large-sample moments of sample moments, e.g. Kendall & Stuart, The Advanced
+    # Theory of Statistics, vol. 1, the chapter on standard errors; the reference is recalled from memory),
+    # with the central moments computed here by numpy
+    data = _draw(700, 12)
+    data["y1"] = np.exp(data["y1"] / 10.0)  # skewed, so that mu_3 is not 0
+    spec = load_spec(MODEL)
+    moments = ordinal_moments(data, spec.observed_names, "data", frozenset({"y1", "y2", "y3"}))
+    values, gamma = moments.statistics()
+    K = len(moments.stacked_thresholds)
+    x = data["y1"].to_numpy(float)
+    d = x - x.mean()
+    mu2, mu3, mu4 = (d**2).mean(), (d**3).mean(), (d**4).mean()
+    mean_at, variance_at = K, K + 3  # y1 is the first continuous item: its mean, then (after 3 means) its variance
+    assert values[mean_at] == pytest.approx(x.mean(), rel=1e-12)
+    assert values[variance_at] == pytest.approx(mu2, rel=1e-12)
+    assert gamma[mean_at, mean_at] == pytest.approx(mu2, rel=1e-10)
+    assert gamma[mean_at, variance_at] == pytest.approx(mu3, rel=1e-10)
+    assert gamma[variance_at, variance_at] == pytest.approx(mu4 - mu2**2, rel=1e-10)
+    assert gamma.shape == (len(values), len(values))
