@@ -544,14 +544,16 @@ def ordinal_models_of_estimates(spec, estimates: list[dict], data, labels: tuple
     dictionaries of its JSON) and its data summary (``data``: each ordinal item's answer values, and for one group
     the means and SDs that standardized the continuous items).  One group: loadings and factor covariances of
     latent responses of unit variance with the first-step thresholds (listed after the parameters); several
-    groups: thresholds, intercepts and residual variances are parameters (Wu & Estabrook 2016)."""
+    groups: thresholds, intercepts and residual variances are parameters (Wu & Estabrook 2016).  Which items are
+    ordinal follows from the fit (the items with answer categories), as it may have been told so by --ordinal."""
     from cfa_tool.model.implied import StructuredModel
     from cfa_tool.model.parameters import build_parameter_table
     from cfa_tool.pipeline.ordinal import ordinal_spec
     from cfa_tool.scoring.model import group_ordinal_model, one_group_ordinal_model, standardized_latent_responses
 
     names = list(data.variables)
-    if not data.categories or sorted(names) != sorted(spec.observed_names):
+    if not data.categories or sorted(names) != sorted(spec.observed_names) or not all(
+            isinstance(e, dict) for e in estimates):
         raise another
     categories = {x: tuple(v for v, _ in cats) for x, cats in zip(names, data.categories)}
     observed = spec.observed_names
@@ -571,7 +573,7 @@ def ordinal_models_of_estimates(spec, estimates: list[dict], data, labels: tuple
     rest = estimates[k:]
     steps = [(x, str(step + 1)) for x in table.observed for step in range(max(len(categories[x]) - 1, 0))]
     if len(rest) != len(steps) or any(e.get("kind") != "threshold" or tuple(e.get("variables", ())) != step
-                                      for e, step in zip(rest, steps)):
+                                      or not isinstance(e.get("estimate"), (int, float)) for e, step in zip(rest, steps)):
         raise another
     theta = _theta_of_estimates(table, estimates[:k], another, derived)
     mats = StructuredModel(table).matrices(theta)

@@ -104,3 +104,22 @@ def test_an_answer_the_fit_never_saw_is_an_error_naming_item_row_and_value(tmp_p
     with pytest.raises(DataError, match=r"ordinal item 'q3' has the answer 9 in data row 5, which is not one of the "
                                         r"categories the earlier fit estimated thresholds for \(1, 2, 3, 4, 5\)"):
         score_with_saved_fit(model_file, _saved(fitted, tmp_path), new)
+
+
+def test_a_json_of_another_model_or_altered_is_refused(tmp_path):
+    from cfa_tool.errors import OptionError
+
+    fitted = cfa_tool.fit(ONE, _draw(400, 7))
+    model_file = tmp_path / "model.cfa"
+    model_file.write_text(ONE)
+    other = tmp_path / "other.cfa"
+    other.write_text("factor f: q2, q1, q3, q4, y1\nordinal q1..q4\n")  # another marker: other parameters
+    path = _saved(fitted, tmp_path)
+    with pytest.raises(OptionError, match="the fit result is not of the model"):
+        score_with_saved_fit(other, path, _draw(20, 8))
+    payload = json.loads(path.read_text())
+    payload["estimates"][-1]["estimate"] = "high"  # a threshold that is not a number
+    altered = tmp_path / "altered.json"
+    altered.write_text(json.dumps(payload))
+    with pytest.raises(OptionError, match="the fit result is not of the model"):
+        score_with_saved_fit(model_file, altered, _draw(20, 8))
