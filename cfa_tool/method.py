@@ -158,8 +158,10 @@ class FitMethod:
         if self.ordinal:
             errors = "cluster-robust standard errors" if self.clustered else "robust standard errors"
             if self.thresholds:
-                return (f"{self.weighting.label} least squares on thresholds and polychoric correlations (ordinal items, "
-                        f"{groups} groups), {errors}")
+                beside = (", with the means, variances and polyserial correlations of continuous items"
+                          if self.items is Items.MIXED else "")
+                return (f"{self.weighting.label} least squares on thresholds and polychoric correlations (ordinal items"
+                        f"{beside}, {groups} groups), {errors}")
             extra = ", with polyserial correlations for continuous items" if self.items is Items.MIXED else ""
             return f"{self.weighting.label} least squares on polychoric correlations (ordinal items{extra}), {errors}"
         text = self.estimator.label

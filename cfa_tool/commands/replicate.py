@@ -16,6 +16,7 @@ def add_parser(sub) -> None:
     rep.add_argument("--validation", metavar="FILE", help="new data the estimates are checked in")
     rep.add_argument("--data", metavar="FILE", help="one data file to split at random into two halves")
     rep.add_argument("--seed", type=int, default=1, help="seed of the random split (default 1)")
+    O.add_ordinal_options(rep)
     O.refuse_design_options(rep, "replicate's tight test and cross-validation index compare normal-theory "
                                  "discrepancies of independent, equally weighted rows (and the random halves would "
                                  "split clusters), so they would mislead under a sampling design; fit each sample "
@@ -31,10 +32,11 @@ def run(args: argparse.Namespace) -> int:
     model = Path(args.model)
     if args.data and (args.calibration or args.validation):
         raise OptionError("give either --data (split-half) or --calibration and --validation, not both")
+    ordinal = {"ordinal": O.ordinal_arg(args.ordinal), "ordinal_estimator": args.ordinal_estimator}
     if args.data:
-        pair = split_half(model, args.data, seed=args.seed)
+        pair = split_half(model, args.data, seed=args.seed, **ordinal)
     elif args.calibration and args.validation:
-        pair = (replicate(model, args.calibration, args.validation),)
+        pair = (replicate(model, args.calibration, args.validation, **ordinal),)
     else:
         raise OptionError("give --calibration and --validation files, or --data FILE to split one data set in two halves")
     return emit(args, Replications(tuple(pair)))

@@ -32,7 +32,7 @@ def add_parser(sub) -> None:
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
     p.add_argument("--from-fit", metavar="RESULT.json",
                    help="score the data with the parameters of an earlier fit of MODEL (its 'fit --json' result) instead "
-                        "of fitting the model to them; continuous items")
+                        "of fitting the model to them (ordinal items by their posterior mean, from its thresholds)")
     add_report_options(p)
 
 

@@ -66,18 +66,19 @@ def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], sour
 
 def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
                           reference: str | None = None, pairwise: bool = False,
-                          design=None) -> tuple[list[tuple[str, object]], int]:
+                          design=None, continuous: frozenset[str] = frozenset()) -> tuple[list[tuple[str, object]], int]:
     """Per-group thresholds and polychoric correlations, every group on the same categories (``pairwise``:
-    from every answer; ``design``: weighted, sampling weights rescaled within each group; see
+    from every answer; ``design``: weighted, sampling weights rescaled within each group; ``continuous``: items
+    analysed beside the ordinal ones, with their means and variances; see
     :func:`cfa_tool.data.polychoric.ordinal_moments`)."""
     from cfa_tool.data.polychoric import ordinal_moments, shared_levels
 
     labels = group_labels(frame, column, source, reference)
     keys = frame[column].map(lambda v: None if pd.isna(v) else _label(v))
     parts = [frame.loc[(keys == label).to_numpy()] for label in labels]
-    levels = shared_levels(parts, names, source, pairwise)
-    out = [(label, ordinal_moments(part, names, source, levels=levels, where=f" (group '{label}' of {column})",
-                                   pairwise=pairwise, design=design))
+    levels = shared_levels(parts, names, source, pairwise)  # (a continuous item's are not used)
+    out = [(label, ordinal_moments(part, names, source, continuous, levels=levels,
+                                   where=f" (group '{label}' of {column})", pairwise=pairwise, design=design))
            for label, part in zip(labels, parts)]
     return out, int(keys.isna().sum())
 

@@ -15,7 +15,8 @@ likelihood; Gamma = mean of IF IF'.  A continuous item next to an ordinal one
 gets a polyserial correlation (two-step, Olsson, Drasgow & Dorans 1982), whose
 influence function is corrected in the same way for the thresholds and for the
 continuous item's mean and standard deviation; two continuous items get the
-Pearson correlation, IF = z_i z_j - r (z_i^2 + z_j^2) / 2.
+Pearson correlation, IF = z_i z_j - r (z_i^2 + z_j^2) / 2.  With groups a continuous item's mean and
+variance are statistics too, with IF = x - m and (x - m)^2 - s^2 (divisor N).
 
 Under a sampling design every statistic is a pseudo-maximum-likelihood estimate: each row's
 contribution to the proportions, the contingency tables, the moments and the likelihoods is
@@ -67,6 +68,9 @@ class OrdinalMoments:
     #: functions (the covariance then follows from them by the design, and is None until it does)
     design: RowDesign | None = field(repr=False, default=None)
     influence: np.ndarray | None = field(repr=False, default=None)
+    #: beside continuous items: asymptotic covariance of sqrt(N)(s - sigma) for s = (all thresholds, the continuous
+    #: items' means, their variances, then the correlations): the statistics of a fit in several groups
+    mixed_gamma: np.ndarray | None = field(repr=False, default=None)
 
     @property
     def pairwise(self) -> bool:
@@ -84,6 +88,22 @@ class OrdinalMoments:
     @property
     def pairs(self) -> tuple[np.ndarray, np.ndarray]:
         return np.tril_indices(len(self.names), -1)
+
+    @property
+    def continuous_positions(self) -> np.ndarray:
+        """Positions (in ``names``) of the continuous items analysed beside the ordinal ones."""
+        return np.array([j for j, x in enumerate(self.names) if x in self.continuous], dtype=int)
+
+    def statistics(self) -> tuple[np.ndarray, np.ndarray]:
+        """(s, Gamma): the statistics a least-squares fit with thresholds as parameters uses, thresholds, then
+        (beside continuous items) their means and variances (divisor N), then the correlations, and the
+        asymptotic covariance of sqrt(N)(s - sigma)."""
+        c = self.continuous_positions
+        parts = [self.stacked_thresholds]
+        if len(c):
+            parts += [self.means[c], self.sds[c] ** 2]
+        parts.append(self.correlations[self.pairs])
+        return np.concatenate(parts), self.mixed_gamma if len(c) else self.joint_gamma
 
 
 def _extended(tau: np.ndarray) -> np.ndarray:
@@ -240,6 +260,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                         f"collect more answers")
     codes = np.where(present, 0, -1)  # -1: no answer
     categories, thresholds, threshold_if = [], [], []
+    mean_if, variance_if = [], []  # of the continuous items' means and variances (divisor N)
     if present.all() and w is None:  # the complete-data formulas, so that a fit without gaps is the listwise one to the last digit
         means, sds = data.mean(axis=0), data.std(axis=0)
     else:
@@ -264,7 +285,11 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         n_j = weight_of(rows_j)
         if name in continuous:
             if sds[j] == 0:
-                raise DataError(f"{source}: column '{name}' has the same value in every row used")
+                raise DataError(f"{source}{where}: column '{printable(name)}' has the same value in every row used")
+            deviation = np.zeros(n)
+            deviation[rows_j] = x - means[j]
+            mean_if.append((n / n_j) * deviation)
+            variance_if.append(np.where(rows_j, (n / n_j) * (deviation**2 - sds[j] ** 2), 0.0))
             categories.append(())
             thresholds.append(np.zeros(0))
             threshold_if.append(np.zeros((n, 0)))
@@ -340,10 +365,14 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             correction += threshold_if[item] @ info_rt
         influence[:, k] = (score - correction) / info_rr
     joint = np.hstack(threshold_if + [influence])
-    joint_gamma = gamma = None  # under a design, from the influence functions by the design (inference layer)
+    joint_gamma = gamma = mixed_gamma = None  # under a design, from the influence functions by the design (inference layer)
     if rows_design is None:
         joint_gamma = joint.T @ joint / n
-        gamma = joint_gamma[len(joint_gamma) - influence.shape[1]:, len(joint_gamma) - influence.shape[1]:]
+        k = joint.shape[1] - influence.shape[1]
+        gamma = joint_gamma[k:, k:]
+        if mean_if:  # the same influence functions, with those of the continuous items' means and variances
+            mixed = np.hstack(threshold_if + [np.column_stack(mean_if), np.column_stack(variance_if), influence])
+            mixed_gamma = mixed.T @ mixed / n
     near = np.abs(R - np.eye(p)) > NEAR_DUPLICATE
     if near.any():
         i, j = np.argwhere(np.tril(near, -1))[0]
@@ -360,7 +389,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
     return OrdinalMoments(tuple(names), n_obs, len(frame), len(frame) - n, source, tuple(categories), tuple(thresholds),
                           R, gamma, codes, means, sds, frozenset(continuous), joint_gamma,
                           pair_counts if pairwise else None, rows_design,
-                          joint if rows_design is not None else None)
+                          joint if rows_design is not None else None, mixed_gamma)
 
 
 NEAR_DUPLICATE = 0.995  # a correlation this close to 1 in size means two items answer alike (the search stops at .999)

@@ -234,3 +234,39 @@ class OrdinalLeastSquares:
         sizes = [len(t) for t in self.targets]
         ends = np.cumsum(sizes)
         return [slice(int(end - size), int(end)) for size, end in zip(sizes, ends)]
+
+
+class MixedLeastSquares(OrdinalLeastSquares):
+    """Thresholds as parameters with continuous items beside the ordinal ones, in any number of groups.
+
+    A continuous item j is its own response (no thresholds), so beside the standardized thresholds and the
+    correlations its mean and variance are statistics too, and their model counterparts are mu_j and
+    Sigma_jj: each group keeps the continuous items' metric, so that their intercepts and residual
+    variances can be compared across groups as for continuous items alone (Millsap & Yun-Tein 2004, for
+    the ordinal ones Wu & Estabrook 2016).  The correlations of all pairs stay Sigma_ij / sqrt(Sigma_ii
+    Sigma_jj): polychoric, polyserial and Pearson correlations in the data.  Statistics per group:
+    (thresholds, means of the continuous items, their variances, correlations)."""
+
+    def __init__(self, model: StructuredModel, groups: list[GroupStatistics], continuous: np.ndarray):
+        super().__init__(model, groups, thresholds=True)
+        self.continuous = np.asarray(continuous, dtype=int)
+
+    def with_targets(self, values: list[np.ndarray]) -> MixedLeastSquares:
+        return MixedLeastSquares(self.model, [replace(g, values=np.asarray(v, dtype=float))
+                                              for g, v in zip(self.groups, values)], self.continuous)
+
+    def _statistics(self, moments) -> np.ndarray:
+        _, sigma, var, mu, _ = moments
+        base = super()._statistics(moments)
+        K, c = self.n_thresholds, self.continuous
+        return np.concatenate([base[:K], mu[c], var[c], base[K:]])
+
+    def _transform(self, moments, d_sigma: np.ndarray, d_mu: np.ndarray, d_tau: np.ndarray) -> np.ndarray:
+        base = super()._transform(moments, d_sigma, d_mu, d_tau)
+        K, c = self.n_thresholds, self.continuous
+        d_var = np.diagonal(d_sigma, axis1=1, axis2=2)
+        return np.hstack([base[:, :K], d_mu[:, c], d_var[:, c], base[:, K:]])
+
+    def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
+        """Not in closed form for these statistics: the expected second derivatives serve."""
+        return None

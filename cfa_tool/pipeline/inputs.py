@@ -490,19 +490,20 @@ def check_ordinal_options(fit_options) -> bool:
 def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, reference_group: str | None,
                    ordinal_items: set[str], pairwise: bool = False,
                    design: DesignColumns | None = None) -> tuple[list, list[str]]:
-    """Per-group ordinal moments (every indicator must then be ordinal), with notes on rows left out:
-    the ordinal counterpart of :func:`moments_for`; ``pairwise`` keeps rows with gaps (pairwise present);
-    under a sampling ``design`` weighted, with the design-based covariance."""
-    continuous = sorted(x for x in spec.observed_names if x not in ordinal_items)
-    if continuous:
-        raise OptionError(f"with groups every indicator must be ordinal; '{continuous[0]}' is not (declare it with "
-                          f"'ordinal' or --ordinal, or fit the groups as continuous items)")
+    """Per-group ordinal moments (items not in ``ordinal_items`` are continuous ones beside them), with notes on
+    rows left out: the ordinal counterpart of :func:`moments_for`; ``pairwise`` keeps rows with gaps (pairwise
+    present); under a sampling ``design`` weighted, with the design-based covariance (ordinal items only)."""
     _check_group_column(spec, group)
     from cfa_tool.data.groups import split_ordinal_moments
-
     from cfa_tool.inference.design import ordinal_design_covariance
 
-    groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise, design)
+    continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
+    if continuous and design is not None:
+        raise OptionError(f"continuous items beside ordinal ones in several groups are not yet fitted with a sampling "
+                          f"design, so the {design.names[0][0]} column '{design.names[0][1]}' cannot apply; declare "
+                          f"every item ordinal, fit the groups without the design, or fit one group at a time")
+    groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise,
+                                             design, continuous)
     groups = [(label, ordinal_design_covariance(m)) for label, m in groups]
     return groups, _no_group_notes(no_group, group) + label_notes(frame, group)
 

@@ -25,7 +25,7 @@ from cfa_tool.assessment.modification import (ModificationIndex, candidate_array
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.errors import CfaError, OptionError
-from cfa_tool.estimation.least_squares import OrdinalLeastSquares, group_statistics
+from cfa_tool.estimation.least_squares import MixedLeastSquares, OrdinalLeastSquares, group_statistics
 from cfa_tool.estimation.strategy import Alternative, search
 from cfa_tool.inference.adjusted import (AdjustedTest, adjusted_fit, adjusted_statistics, adjusted_test, residual_weights,
                                          robust_covariance)
@@ -46,6 +46,10 @@ ORDINAL_NOTE = ("With ordinal items the fit indices come from the scale-shifted 
 GROUPS_NOTE = ("Ordinal items in several groups: the latent responses have intercept 0 and residual variance 1 in the first "
                "group (and wherever an item's thresholds differ across groups); loadings and residual variances are in "
                "that metric; standardized values compare across groups (identification after Wu & Estabrook 2016).")
+MIXED_GROUPS_NOTE = ("Continuous items beside the ordinal ones keep their own metric in every group: their means and "
+                     "variances are fitted with the thresholds and correlations, and their intercepts and residual "
+                     "variances are free in each group until held equal, as for continuous items alone (Millsap & "
+                     "Yun-Tein 2004).")
 MI_NOTE = "modification indices for ordinal items are robust score tests (Satorra 1989)"
 
 
@@ -175,6 +179,16 @@ def unit_variance_matrices(mats):
     return dc_replace(mats, T=T)
 
 
+def correlations_in_order(moments, observed: tuple[str, ...]) -> tuple[np.ndarray, np.ndarray]:
+    """(R, Gamma): the correlation matrix of ``moments`` with its items in the order ``observed``, and the
+    asymptotic covariance of its correlations below the diagonal in np.tril_indices order."""
+    order = [moments.names.index(n) for n in observed]
+    full_pairs = np.tril_indices(len(moments.names), -1)
+    index_of = {(int(a), int(b)): k for k, (a, b) in enumerate(zip(*full_pairs))}
+    take = [index_of[tuple(sorted((order[i], order[j]), reverse=True))] for i, j in zip(*np.tril_indices(len(order), -1))]
+    return moments.correlations[np.ix_(order, order)], moments.gamma[np.ix_(take, take)]
+
+
 def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weighting.DIAGONAL) -> FitResult:
     """Least squares on polychoric correlations, with robust standard errors and adjusted tests."""
     method = _check_method(method)
@@ -186,12 +200,8 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
         raise OptionError(f"the model has {table.n_free} free parameters but {p} ordinal items give only {n_corr} "
                           f"correlations, so it cannot be identified")
     order = [moments.names.index(n) for n in table.observed]
-    R = moments.correlations[np.ix_(order, order)]
-    full_pairs = np.tril_indices(len(moments.names), -1)
-    index_of = {(int(a), int(b)): k for k, (a, b) in enumerate(zip(*full_pairs))}
+    R, gamma = correlations_in_order(moments, table.observed)
     pairs = np.tril_indices(p, -1)
-    take = [index_of[tuple(sorted((order[i], order[j]), reverse=True))] for i, j in zip(*pairs)]
-    gamma = moments.gamma[np.ix_(take, take)]
     statistics = [group_statistics(R[pairs], gamma, moments.n_obs, method is Weighting.DIAGONAL)]
     weights = statistics[0].weights
     model = StructuredModel(table)
@@ -305,27 +315,51 @@ def _in_model_order(groups: list, observed: tuple[str, ...]) -> list:
     return moments
 
 
+def threshold_counts(moments) -> dict[str, int]:
+    """The ordinal items of a multi-group fit with their numbers of thresholds (continuous items beside them have
+    none and keep their own metric)."""
+    return {x: len(t) for x, t in zip(moments.names, moments.thresholds) if x not in moments.continuous}
+
+
+def _objective(model: StructuredModel, statistics: list, continuous: np.ndarray) -> OrdinalLeastSquares:
+    """Least squares with thresholds as parameters; beside continuous items their means and variances too."""
+    if len(continuous):
+        return MixedLeastSquares(model, statistics, continuous)
+    return OrdinalLeastSquares(model, statistics, thresholds=True)
+
+
 def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting | str = Weighting.DIAGONAL,
                             start: np.ndarray | None = None) -> OrdinalEstimation:
-    """Build the multi-group ordinal model and minimise its least-squares discrepancy."""
+    """Build the multi-group ordinal model and minimise its least-squares discrepancy.  Continuous items
+    beside the ordinal ones keep their metric in every group (their means and variances are statistics, their
+    intercepts and residual variances parameters; :class:`~cfa_tool.estimation.least_squares.MixedLeastSquares`)."""
     method = _check_method(method)
     labels = tuple(label for label, _ in groups)
     observed = spec.observed_names
     moments = _in_model_order(groups, observed)
-    n_thresholds = {x: len(t) for x, t in zip(observed, moments[0].thresholds)}
+    if any(m.continuous != moments[0].continuous for m in moments[1:]):
+        raise ValueError("every group must treat the same items as continuous")
+    n_thresholds = threshold_counts(moments[0])
+    continuous = moments[0].continuous_positions
     table = build_parameter_table(spec, labels, ordinal=n_thresholds)
-    n_stats = sum(len(m.stacked_thresholds) + len(observed) * (len(observed) - 1) // 2 for m in moments)
+    data = [m.statistics() for m in moments]
+    n_stats = sum(len(values) for values, _ in data)
     if table.n_free > n_stats:
-        raise OptionError(f"the model has {table.n_free} free parameters but the groups' thresholds and correlations "
+        what = "thresholds, means, variances" if len(continuous) else "thresholds"
+        raise OptionError(f"the model has {table.n_free} free parameters but the groups' {what} and correlations "
                           f"give only {n_stats} statistics, so it cannot be identified")
     model = StructuredModel(table)
-    pairs = np.tril_indices(len(observed), -1)
-    statistics = [group_statistics(np.concatenate([m.stacked_thresholds, m.correlations[pairs]]), m.joint_gamma, m.n_obs,
-                                   method is Weighting.DIAGONAL) for m in moments]
-    objective = OrdinalLeastSquares(model, statistics, thresholds=True)
+    statistics = [group_statistics(values, gamma, m.n_obs, method is Weighting.DIAGONAL)
+                  for (values, gamma), m in zip(data, moments)]
+    objective = _objective(model, statistics, continuous)
     weights = objective.weights
     R = sum(w * m.correlations for w, m in zip(weights, moments))
     tau = sum(w * m.stacked_thresholds for w, m in zip(weights, moments))
+    scale, location = np.ones(len(observed)), np.zeros(len(observed))
+    if len(continuous):  # continuous items start in their own metric (pooled over the groups)
+        scale[continuous] = np.sqrt(sum(w * m.sds[continuous] ** 2 for w, m in zip(weights, moments)))
+        location[continuous] = sum(w * m.means[continuous] for w, m in zip(weights, moments))
+    S = R * np.outer(scale, scale)
 
     def variance_scaled_problem() -> Alternative | None:
         try:
@@ -333,11 +367,11 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting
         except CfaError:  # e.g. a freed factor variance, which variance scaling would fix
             return None
         alt_model = StructuredModel(alt_table)
-        return Alternative(alt_table, alt_model, OrdinalLeastSquares(alt_model, statistics, thresholds=True),
-                           starting_values(alt_table, R, np.zeros(len(observed)), thresholds=tau))
+        return Alternative(alt_table, alt_model, _objective(alt_model, statistics, continuous),
+                           starting_values(alt_table, S, location, thresholds=tau))
 
     if start is None or len(start) != table.n_free:
-        start = starting_values(table, R, np.zeros(len(observed)), thresholds=tau)
+        start = starting_values(table, S, location, thresholds=tau)
     found = search(objective, table, start, options.max_iterations, variance_scaled_problem)
     opt = found.result
     message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations)
@@ -422,7 +456,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         df = est.df
         T = est.statistic
         slices = obj.group_slices()
-        K = obj.n_thresholds
+        K = obj.n_thresholds + 2 * len(getattr(obj, "continuous", ()))  # the baseline leaves these saturated
         base_df = G * len(pairs[0])
         T_base = 0.0
         D_base = np.zeros((G * K, D.shape[1]))
@@ -446,6 +480,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
             exo = exogenous_factors(spec)
             modification_rows = ordinal_score_tests(est, [candidate_entries(table, exo, g) for g in range(G)])
         warnings.append(GROUPS_NOTE)
+        if moments[0].continuous:
+            warnings.append(MIXED_GROUPS_NOTE)
         warnings.append(ORDINAL_NOTE)
     problems = solution_problems(table, list(mats), theta, cov_theta if est.converged else None, est.converged,
                                  est.message, options.max_iterations)
@@ -472,10 +508,14 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                                          latent_covariance=mats[g].latent_covariance()))
     per_group = [_pair_rows(m, list(range(p))) for m in moments]
     total_pairs = tuple((a, b, sum(rows[k][2] for rows in per_group)) for k, (a, b, _) in enumerate(per_group[0]))
+    per_group_counts = [_category_counts(m, list(range(p))) for m in moments]  # every group has every category
+    total_counts = tuple(tuple((value, sum(counts[j][c][1] for counts in per_group_counts))
+                               for c, (value, _) in enumerate(per_group_counts[0][j])) for j in range(p))
     total = DataSummary(moments[0].source, sum(m.rows_read for m in moments), dropped, n, table.observed,
                         tuple(float(v) for v in sum(m.n_obs * m.means for m in moments) / n),
-                        tuple(float(v) for v in moments[0].sds), pair_rows=total_pairs)
-    return fit_result(spec=spec, method=_fit_method(method, Items.ORDINAL, thresholds=True,
+                        tuple(float(v) for v in moments[0].sds), categories=total_counts, pair_rows=total_pairs)
+    items = Items.MIXED if moments[0].continuous else Items.ORDINAL
+    return fit_result(spec=spec, method=_fit_method(method, items, thresholds=True,
                                                     pairwise=all(m.pairwise for m in moments)), converged=est.converged,
                       iterations=est.iterations, message=est.message, theta=theta, n_obs=n, data=total,
                       observed=table.observed, latent=table.latent, fit=fit, robust=robust, estimates=estimates,

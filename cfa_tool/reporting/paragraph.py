@@ -46,8 +46,10 @@ def _estimator_phrase(result) -> str:
     method = result.method
     if method.ordinal:
         extra = " and polyserial" if method.items is Items.MIXED else ""
-        return (f"{method.weighting.label} least squares on polychoric{extra} correlations of the ordinal items, with "
-                f"robust standard errors")
+        moments = (" (and the means and variances of the continuous items)"
+                   if method.items is Items.MIXED and method.thresholds else "")
+        return (f"{method.weighting.label} least squares on polychoric{extra} correlations of the ordinal items{moments}, "
+                f"with robust standard errors")
     base = "full-information maximum likelihood" if method.full_information else "maximum likelihood"
     if result.robust is not None:
         test = "Yuan-Bentler" if method.full_information else "Satorra-Bentler"

@@ -285,22 +285,30 @@ def invariance_report(result) -> Report:
 
 # ---------------------------------------------------------------- replicate
 
+def _replication_figures(result, adjusted: bool) -> tuple:
+    """(chi-square, df, p, RMSEA, CFI) of a fit: the scale-shifted ones of an ordinal fit (``adjusted``)."""
+    f, r = result.fit, result.robust
+    if adjusted and r is not None:
+        return r.chi_square_scaled, r.df, r.p_value_scaled, r.rmsea_robust, r.cfi_robust
+    return f.chi_square, f.df, f.p_value, f.rmsea, f.cfi
+
+
 def replication_report(replications) -> Report:
     reps = list(getattr(replications, "replications", None) or [replications])
     problems, tables, notes = [], [], []
     for k, rep in enumerate(reps):
         problems += _problem_lines([(f"the calibration fit ({rep.calibration})", rep.calibration_result),
                                     (f"the loose refit ({rep.validation})", rep.loose)])
-        cal = rep.calibration_result.fit
-        rows = [[f"Calibration fit (N = {rep.calibration_result.n_obs})", f"{cal.chi_square:.3f}", str(cal.df),
-                 p_value(cal.p_value), unit(cal.rmsea), unit(cal.cfi)]]
-        values = [["Calibration fit", rep.calibration_result.n_obs, cal.chi_square, cal.df, cal.p_value, cal.rmsea, cal.cfi]]
+        cal = _replication_figures(rep.calibration_result, rep.adjusted)
+        rows = [[f"Calibration fit (N = {rep.calibration_result.n_obs})", f"{cal[0]:.3f}", str(cal[1]),
+                 p_value(cal[2]), unit(cal[3]), unit(cal[4])]]
+        values = [["Calibration fit", rep.calibration_result.n_obs, *cal]]
         flagged = [0] if not rep.calibration_result.admissible else []
         if rep.loose.fit is not None and rep.loose.converged:
-            f = rep.loose.fit
-            rows.append([f"Loose: same model refitted (N = {rep.loose.n_obs})", f"{f.chi_square:.3f}", str(f.df),
-                         p_value(f.p_value), unit(f.rmsea), unit(f.cfi)])
-            values.append(["Loose: same model refitted", rep.loose.n_obs, f.chi_square, f.df, f.p_value, f.rmsea, f.cfi])
+            f = _replication_figures(rep.loose, rep.adjusted)
+            rows.append([f"Loose: same model refitted (N = {rep.loose.n_obs})", f"{f[0]:.3f}", str(f[1]),
+                         p_value(f[2]), unit(f[3]), unit(f[4])])
+            values.append(["Loose: same model refitted", rep.loose.n_obs, *f])
             if not rep.loose.admissible:
                 flagged.append(1)
         else:
@@ -315,6 +323,11 @@ def replication_report(replications) -> Report:
                              rows, f"Cross-validation index (Cudeck & Browne 1983): {rep.cvi:.4f}; saturated model: "
                                    f"{rep.cvi_saturated:.4f} (smaller is better).", tuple(flagged),
                              values=(["Check", "N", "Chi-square", "df", "p", "RMSEA", "CFI"], values)))
+    if any(rep.adjusted for rep in reps):
+        notes.append("Ordinal items: every chi-square, RMSEA and CFI is the scale-shifted (mean-and-variance adjusted) "
+                     "one of the least-squares fit; the tight check compares the validation sample's polychoric "
+                     "correlations with those the calibration estimates imply, and the cross-validation index is the "
+                     "least-squares discrepancy with the validation sample's weights.")
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
     return Report(ResultKind.REPLICATE, title, _notice(problems), (), tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE))

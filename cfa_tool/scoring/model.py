@@ -249,15 +249,19 @@ def ordinal_score_inputs(estimation, groups: list) -> tuple[OrdinalScoringModel,
     ``groups``: the ``(label, OrdinalMoments)`` list it was estimated from (for the categories).
     """
     table, model, theta = estimation.table, estimation.model, estimation.theta
-    out = []
-    for g, (label, moments) in enumerate(groups):
-        mats = model.matrices(theta, g)
-        stacked = model.thresholds(theta, g)
-        ends = np.cumsum([len(t) for t in moments.thresholds])
-        thresholds = tuple(np.split(stacked, ends[:-1]))
-        base = scoring_model(mats, table.observed, table.latent, label)
-        out.append(OrdinalScoringModel(base, thresholds, moments.categories))
-    return tuple(out)
+    return tuple(group_ordinal_model(model, theta, g, label, moments.categories) for g, (label, moments) in enumerate(groups))
+
+
+def group_ordinal_model(model, theta: np.ndarray, g: int, label: str | None,
+                        categories: tuple[tuple[float, ...], ...]) -> OrdinalScoringModel:
+    """Group g's :class:`OrdinalScoringModel` of a fit with thresholds as parameters (``model`` a StructuredModel,
+    ``categories`` each item's answer values in the model's item order, empty for a continuous item, which
+    keeps its own metric)."""
+    table = model.table
+    mats = model.matrices(theta, g)
+    ends = np.cumsum([max(len(c) - 1, 0) for c in categories])
+    thresholds = tuple(np.split(model.thresholds(theta, g), ends[:-1]))
+    return OrdinalScoringModel(scoring_model(mats, table.observed, table.latent, label), thresholds, categories)
 
 
 def one_group_ordinal_inputs(mats: ModelMatrices, items: tuple[str, ...], factors: tuple[str, ...], moments
@@ -269,6 +273,13 @@ def one_group_ordinal_inputs(mats: ModelMatrices, items: tuple[str, ...], factor
     correlations were."""
     if tuple(moments.names) != tuple(items):
         raise ValueError("the ordinal moments must list the items in the model's order")
-    mats = standardized_latent_responses(mats)
-    base = scoring_model(mats, items, factors)
-    return OrdinalScoringModel(base, moments.thresholds, moments.categories, location=moments.means, scale=moments.sds)
+    return one_group_ordinal_model(mats, items, factors, moments.thresholds, moments.categories, moments.means,
+                                   moments.sds)
+
+
+def one_group_ordinal_model(mats: ModelMatrices, items: tuple[str, ...], factors: tuple[str, ...], thresholds,
+                            categories, means: np.ndarray, sds: np.ndarray) -> OrdinalScoringModel:
+    """:func:`one_group_ordinal_inputs` from its pieces: each item's first-step thresholds and answer values, and
+    the sample means and standard deviations (divisor N) that standardized the continuous items."""
+    base = scoring_model(standardized_latent_responses(mats), items, factors)
+    return OrdinalScoringModel(base, tuple(thresholds), tuple(categories), location=means, scale=sds)

@@ -18,7 +18,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.sample_design import check_design, design_columns
-from cfa_tool.errors import EstimationError, OptionError, printable
+from cfa_tool.errors import DataError, EstimationError, OptionError, printable
 from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
@@ -298,15 +298,17 @@ def models_of_fit(result: FitResult) -> tuple[list, list]:
     from cfa_tool.language.parser import parse_model
     from cfa_tool.scoring.model import scoring_model
 
-    if result.method.ordinal:
-        raise OptionError("scoring new data with an earlier fit is available for continuous items only; for ordinal "
-                          "items, score the data the model is fitted to (cfa_tool.scores)")
     if result.theta is None:
         raise OptionError("this result holds no estimates to score with (a fit to summary statistics?)")
     spec = parse_model(result.model_text, source=result.model_source)
     from cfa_tool.pipeline.inputs import without_exploratory_blocks
 
     without_exploratory_blocks(spec, "scores", "its factors' scores would be those of the unrotated block")
+    if result.method.ordinal:
+        labels = tuple(g.label for g in result.groups) if result.multigroup else None
+        return ordinal_models_of_estimates(spec, [row.to_dict() for row in result.estimates], result.data, labels,
+                                           OptionError("the result's estimates do not match its model text; refit the "
+                                                       "model"))
     labels = tuple(g.label for g in result.groups) if result.multigroup else None
     mean_structure = result.multigroup or any(r.kind == "intercept" for r in result.estimates)
     table, model = model_structure(spec, labels, mean_structure)
@@ -329,7 +331,7 @@ def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bo
         raise OptionError(f"scores need a fit result (cfa_tool.fit), not {type(result).__name__}")
     if not result.admissible:
         raise EstimationError("the fitted solution is not admissible, so no factor scores are computed with it")
-    chosen = method_option(methods)
+    chosen = _saved_methods(methods, result.method.ordinal)
     models, labels = models_of_fit(result)
     return _score_other_data(result, _spec_of(result), models, labels, data, chosen, standard_errors, id_column, sheet,
                              missing_codes, keep)
@@ -356,22 +358,30 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     keep = api.keep_option(keep)
     if keep:
         frame, notes = apply_filters(read_frame, [parse_filter(k) for k in keep], source)
-    rows = _numeric(frame, models[0].items, source)
+    from cfa_tool.scoring.model import OrdinalScoringModel
+
+    ordinal = isinstance(models[0], OrdinalScoringModel)
+    base = models[0].base if ordinal else models[0]
+    rows = _numeric(frame, base.items, source)
     group_of_row = _group_keys(frame, group) if group is not None else np.full(len(frame), None, dtype=object)
     from cfa_tool.scoring.linear import score_rows
+    from cfa_tool.scoring.ordinal import eap_scores
 
-    m = models[0].m
+    m = base.m
     n = len(read_frame)
     values = {meth: np.full((n, m), np.nan) for meth in chosen}
     errors = {meth: np.full((n, m), np.nan) for meth in chosen}
     position = pd.Series(np.arange(n), index=read_frame.index)
+    if ordinal:
+        _check_categories(models[0], rows, position.loc[frame.index].to_numpy(), source)
     counts: dict = {}
     for model_g, label in zip(models, labels):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(frame))
         if not len(sel):
             continue
         at = position.loc[frame.index[sel]].to_numpy()
-        for meth, block in score_rows(model_g, rows[sel], chosen).items():
+        scored = {chosen[0]: eap_scores(model_g, rows[sel])} if ordinal else score_rows(model_g, rows[sel], chosen)
+        for meth, block in scored.items():
             values[meth][at], errors[meth][at] = block.scores, block.standard_errors
             for why, c in block.unscored.items():
                 key = (why.value, meth.value)
@@ -383,14 +393,49 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         if number:
             for meth in chosen:
                 counts[(reason, meth.value)] = np.full(m, number)
-    factors = models[0].factors
-    id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, bool(standard_errors))
+    factors = base.factors
+    with_errors = bool(standard_errors or ordinal)  # a posterior mean always comes with its posterior SD
+    id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names")
-    notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
-                    f"{result.data.source}; the quality figures are those of that fit.")
+    if ordinal:
+        quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, frame.index,
+                                   group_of_row, group)
+        notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
+                        f"{result.data.source} (loadings, thresholds and factor covariances); the quality figures "
+                        f"(marginal reliability) are those of the scores of {source}.")
+    else:
+        quality = _linear_quality(models)
+        notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
+                        f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
-    return ScoreResult(result, chosen, tuple(factors), id_name, pd.DataFrame(columns), tuple(_linear_quality(models)),
-                       unscored, bool(standard_errors), tuple(notes), source)
+    return ScoreResult(result, chosen, tuple(factors), id_name, pd.DataFrame(columns), tuple(quality),
+                       unscored, with_errors, tuple(notes), source)
+
+
+def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str) -> None:
+    """Every answer to an ordinal item must be one of the categories the earlier fit estimated thresholds for: an
+    error naming the item, the data row and the value otherwise (``data_rows``: each row's place in the file,
+    from 0)."""
+    for j, cats in enumerate(model.categories):
+        if not cats:
+            continue
+        column = rows[:, j]
+        unknown = ~np.isnan(column) & ~np.isin(column, np.asarray(cats))
+        if unknown.any():
+            k = int(np.flatnonzero(unknown)[0])
+            raise DataError(f"{source}: ordinal item '{printable(model.base.items[j])}' has the answer {column[k]:g} in "
+                            f"data row {int(data_rows[k]) + 1}, which is not one of the categories the earlier fit "
+                            f"estimated thresholds for ({', '.join(f'{v:g}' for v in cats)}); recode it or leave it out")
+
+
+def _saved_methods(methods, ordinal: bool) -> tuple[ScoreMethod, ...]:
+    """The scoring methods for an earlier fit: ordinal items have one, the posterior mean."""
+    if not ordinal:
+        return method_option(methods)
+    if methods is not None:
+        raise OptionError("the earlier fit has ordinal items, which are scored by their posterior mean (with its "
+                          "standard deviation), so a scoring method cannot be chosen; remove that option")
+    return (ScoreMethod.EXPECTED_A_POSTERIORI,)
 
 
 @dataclass(frozen=True, eq=False)
@@ -430,15 +475,16 @@ def read_saved_fit(path) -> SavedFit:
         if payload.get("tool") != "cfa-tool" or "estimates" not in payload:
             raise ValueError
         d = payload["data"]
+        counts = d.get("category_counts") or {}
+        categories = tuple(tuple((float(c["value"]), int(c["rows"])) for c in counts.get(x, ())) for x in d["variables"])
         summary = DataSummary(str(d["source"]), int(d["rows_read"]), int(d["rows_dropped"]), int(d["n_obs"]),
-                              tuple(d["variables"]), tuple(float(v) for v in d["means"]), tuple(float(v) for v in d["sds"]))
+                              tuple(d["variables"]), tuple(float(v) for v in d["means"]), tuple(float(v) for v in d["sds"]),
+                              categories=categories if counts else ())
         problems = tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
                                  q["advice"], q["group"]) for q in payload.get("problems", ()))
         model = payload["model"]
     except (ValueError, KeyError, TypeError, AttributeError, UnicodeDecodeError):
         raise OptionError(f"'{printable(str(path))}' is not the JSON result of a fit by cfa-tool (fit --json)") from None
-    if payload.get("ordinal_items"):
-        raise OptionError("scoring new data with an earlier fit is available for continuous items only")
     return SavedFit(str(model.get("name")), str(model.get("source")), str(payload.get("estimator")), int(payload["n_obs"]),
                     summary, tuple(summary.variables), problems, tuple(payload.get("warnings", ())),
                     payload.get("group_column"), payload)
@@ -455,12 +501,31 @@ def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
     estimates = saved.payload["estimates"]
     multi = saved.group_column is not None
     labels = tuple(g["name"] for g in saved.payload.get("groups", ())) if multi else None
-    mean_structure = multi or any(e.get("kind") == "intercept" for e in estimates)
-    table, model = model_structure(spec, labels, mean_structure)
     another = OptionError(f"the fit result is not of the model {spec.source} (its estimates differ from the model's "
                           f"parameters); give the model file the fit was made with")
+    if saved.payload.get("ordinal_items"):
+        return ordinal_models_of_estimates(spec, estimates, saved.data, labels, another)
+    mean_structure = multi or any(e.get("kind") == "intercept" for e in estimates)
+    table, model = model_structure(spec, labels, mean_structure)
     if len(estimates) != len(table.parameters):
         raise another
+    theta = _theta_of_estimates(table, estimates, another)
+    out = []
+    for g in range(table.n_groups):
+        means = None
+        if not mean_structure:
+            names = list(saved.data.variables)
+            means = np.array([saved.data.means[names.index(x)] for x in table.observed])
+        out.append(scoring_model(model.matrices(theta, g), table.observed, table.latent,
+                                 labels[g] if labels else None, means))
+    return out, list(labels) if labels else [None]
+
+
+def _theta_of_estimates(table, estimates: list[dict], another: OptionError, derived=frozenset()) -> np.ndarray:
+    """The free parameters read back from a result's estimates (dictionaries of its JSON), each matched to its
+    parameter in ``table`` (the same kind, variables and group, in the same order), and every estimate recomputed
+    from them: ``another`` when anything differs (the result is of another model).  ``derived``: positions of
+    fixed parameters whose reported value follows from the others (an ordinal fit's residual variances)."""
     theta = np.full(table.n_free, np.nan)
     values = []
     for par, est in zip(table.parameters, estimates):
@@ -476,19 +541,66 @@ def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
             theta[index] = (value - par.offset) / coefficient
     if np.isnan(theta).any():
         raise another
-    for par, value in zip(table.parameters, values):
+    for k, (par, value) in enumerate(zip(table.parameters, values)):
         again = par.offset + sum(c * theta[i] for i, c in par.terms)
-        if abs(again - value) > 1e-8 * (1.0 + abs(value)):
+        if k not in derived and abs(again - value) > 1e-8 * (1.0 + abs(value)):
             raise another
-    out = []
-    for g in range(table.n_groups):
-        means = None
-        if not mean_structure:
-            names = list(saved.data.variables)
-            means = np.array([saved.data.means[names.index(x)] for x in table.observed])
-        out.append(scoring_model(model.matrices(theta, g), table.observed, table.latent,
-                                 labels[g] if labels else None, means))
-    return out, list(labels) if labels else [None]
+    return theta
+
+
+def ordinal_models_of_estimates(spec, estimates: list[dict], data, labels: tuple[str, ...] | None,
+                                another: OptionError) -> tuple[list, list]:
+    """Each group's :class:`~cfa_tool.scoring.model.OrdinalScoringModel` from the estimates of an ordinal fit (as
+    dictionaries of its JSON) and its data summary (``data``: each ordinal item's answer values, and for one group
+    the means and SDs that standardized the continuous items).  One group: loadings and factor covariances of
+    latent responses of unit variance with the first-step thresholds (listed after the parameters); several
+    groups: thresholds, intercepts and residual variances are parameters (Wu & Estabrook 2016).  Which items are
+    ordinal follows from the fit (the items with answer categories), as it may have been told so by --ordinal."""
+    from cfa_tool.model.implied import StructuredModel
+    from cfa_tool.model.parameters import build_parameter_table
+    from cfa_tool.pipeline.ordinal import ordinal_spec
+    from cfa_tool.scoring.model import group_ordinal_model, one_group_ordinal_model, standardized_latent_responses
+
+    names = list(data.variables)
+    if not data.categories or sorted(names) != sorted(spec.observed_names) or not all(
+            isinstance(e, dict) for e in estimates):
+        raise another
+    categories = {x: tuple(v for v, _ in cats) for x, cats in zip(names, data.categories)}
+    observed = spec.observed_names
+    if labels is not None:
+        table = build_parameter_table(spec, labels, ordinal={x: len(c) - 1 for x, c in categories.items() if c})
+        if len(estimates) != len(table.parameters):
+            raise another
+        model = StructuredModel(table)
+        theta = _theta_of_estimates(table, estimates, another)
+        in_order = tuple(categories[x] for x in table.observed)
+        return [group_ordinal_model(model, theta, g, label, in_order) for g, label in enumerate(labels)], list(labels)
+    fixed_spec, derived_items = ordinal_spec(spec)
+    table = build_parameter_table(fixed_spec)
+    k = len(table.parameters)
+    derived = frozenset(e for e, par in enumerate(table.parameters)
+                        if par.kind == "residual_variance" and par.variables[0] in derived_items)
+    rest = estimates[k:]
+    steps = [(x, str(step + 1)) for x in table.observed for step in range(max(len(categories[x]) - 1, 0))]
+    if len(rest) != len(steps) or any(e.get("kind") != "threshold" or tuple(e.get("variables", ())) != step
+                                      or not isinstance(e.get("estimate"), (int, float)) for e, step in zip(rest, steps)):
+        raise another
+    theta = _theta_of_estimates(table, estimates[:k], another, derived)
+    mats = StructuredModel(table).matrices(theta)
+    unit = standardized_latent_responses(mats)
+    for e in derived:  # the reported residual variances are 1 minus the common variance
+        par = table.parameters[e]
+        if abs(unit.T[par.row, par.row] - float(estimates[e]["estimate"])) > 1e-8:
+            raise another
+    by_item = {x: [] for x in observed}
+    for e in rest:
+        by_item[e["variables"][0]].append(float(e["estimate"]))
+    order = [names.index(x) for x in table.observed]
+    model = one_group_ordinal_model(mats, table.observed, table.latent,
+                                    [np.asarray(by_item[x]) for x in table.observed],
+                                    [categories[x] for x in table.observed],
+                                    np.asarray(data.means)[order], np.asarray(data.sds)[order])
+    return [model], [None]
 
 
 def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_errors: bool = False,
@@ -501,7 +613,7 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
         raise EstimationError(f"the fit in '{printable(str(saved_path))}' is not admissible, so no factor scores are "
                               f"computed with it")
     spec = api.load_spec(model)
-    chosen = method_option(methods)
+    chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")))
     models, labels = models_of_saved_fit(spec, saved)
     return _score_other_data(saved, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
                              keep)
@@ -573,11 +685,11 @@ def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, 
         return [one_group_ordinal_inputs(mats, table.observed, table.latent, moments)], [None]
     from cfa_tool.model.implied import StructuredModel
     from cfa_tool.model.parameters import build_parameter_table
+    from cfa_tool.pipeline.ordinal import threshold_counts
 
     groups, _ = api.ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise, design)
     labels = tuple(label for label, _ in groups)
-    n_thresholds = {x: len(t) for x, t in zip(spec.observed_names, groups[0][1].thresholds)}
-    table = build_parameter_table(spec, labels, ordinal=n_thresholds)
+    table = build_parameter_table(spec, labels, ordinal=threshold_counts(groups[0][1]))
     if table.n_free != len(result.theta):
         raise AssertionError("the fitted parameters do not match the model's table")
     return list(ordinal_score_inputs(_Fitted(table, StructuredModel(table), result.theta), groups)), list(labels)

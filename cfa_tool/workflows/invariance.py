@@ -209,7 +209,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     then the scaled ones of the design-based statistics.
 
     With ordinal items (an 'ordinal' statement or ``ordinal``) the ladder is configural, thresholds,
-    metric, scalar, strict, fitted by least squares on thresholds and polychoric correlations."""
+    metric, scalar, strict, fitted by least squares on thresholds and polychoric correlations; continuous items
+    beside them add their means and variances, and their intercepts and residual variances are held equal at the
+    scalar and strict steps as for continuous items alone (Millsap & Yun-Tein 2004)."""
     if not isinstance(group, str):
         raise OptionError(f"the invariance ladder needs a group column, given by its name (text), not "
                           f"{type(group).__name__}")

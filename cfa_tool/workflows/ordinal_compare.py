@@ -50,28 +50,39 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
             result = assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False)
         estimations.append(est)
         if group is None and result.fit is not None:
-            # 'fit' of one group estimates the thresholds in a first step and does not count them: count alike
-            thresholds = len({par.terms[0][0] for par in est.table.parameters if par.kind == "threshold" and par.free})
-            result = replace(result, fit=replace(result.fit, n_free_parameters=result.fit.n_free_parameters - thresholds))
+            # 'fit' of one group estimates the thresholds in a first step and does not count them, nor (beside
+            # continuous items) their intercepts and residual variances, which that fit does not estimate: count alike
+            saturated = len({par.terms[0][0] for par in est.table.parameters if par.free and (
+                par.kind == "threshold" or (par.kind in ("intercept", "residual_variance")
+                                            and par.variables[0] not in ordinal_items))})
+            result = replace(result, fit=replace(result.fit, n_free_parameters=result.fit.n_free_parameters - saturated))
         if design is not None and result.converged:
             result = with_design(result, design_summary(complete, design, [m for _, m in groups]))
         results.append(result)
     return estimations, results
 
 
-def statistic_order(names_from: tuple[str, ...], names_to: tuple[str, ...], n_thresholds: dict[str, int]) -> np.ndarray:
-    """Indices that reorder one group's (thresholds, correlations) vector from one item order to another."""
+def statistic_order(names_from: tuple[str, ...], names_to: tuple[str, ...], n_thresholds: dict[str, int],
+                    continuous: frozenset[str] = frozenset()) -> np.ndarray:
+    """Indices that reorder one group's (thresholds, [continuous items' means, their variances,] correlations)
+    vector from one item order to another."""
     start, position = {}, 0
     for x in names_from:
         start[x] = position
-        position += n_thresholds[x]
-    thresholds = [start[x] + k for x in names_to for k in range(n_thresholds[x])]
+        position += n_thresholds.get(x, 0)
+    thresholds = [start[x] + k for x in names_to for k in range(n_thresholds.get(x, 0))]
+    moments = []
+    c_from = [x for x in names_from if x in continuous]
+    c_to = [x for x in names_to if x in continuous]
+    for block in range(2):  # the means, then the variances
+        moments += [position + block * len(c_from) + c_from.index(x) for x in c_to]
+    position += 2 * len(c_from)
     p = len(names_from)
     pair_index = {}
     for k, (i, j) in enumerate(zip(*np.tril_indices(p, -1))):
         pair_index[frozenset((names_from[i], names_from[j]))] = position + k
     pairs = [pair_index[frozenset((names_to[i], names_to[j]))] for i, j in zip(*np.tril_indices(p, -1))]
-    return np.asarray(thresholds + pairs, dtype=int)
+    return np.asarray(thresholds + moments + pairs, dtype=int)
 
 
 def ordinal_difference_test(restricted, general, restricted_result, general_result, restricted_name: str,
@@ -84,7 +95,8 @@ def ordinal_difference_test(restricted, general, restricted_result, general_resu
     obj_r = restricted.objective
     names_r, names_g = restricted.table.observed, general.table.observed
     n_thr = {x: int(np.sum(obj_r.item_of == j)) for j, x in enumerate(names_r)}
-    order = statistic_order(names_r, names_g, n_thr)  # restricted's vector -> general's order
+    continuous = frozenset(names_r[j] for j in getattr(obj_r, "continuous", ()))
+    order = statistic_order(names_r, names_g, n_thr, continuous)  # restricted's vector -> general's order
     # the general model fitted to the restricted model's implied statistics (M10 of Satorra & Bentler 2010)
     target = general.objective.with_targets([obj_r.statistics(restricted.theta, g)[order] for g in range(len(obj_r.weights))])
     opt = minimise(target.evaluate, target.value, general.theta, general.table.lower, general.table.upper)

@@ -8,6 +8,15 @@
   for scale; smaller is better.
 A split-half mode divides one data set at random (seeded) and runs both
 directions (double cross-validation; Cudeck & Browne 1983).
+
+Ordinal items (and continuous items beside them) are fitted as ``fit`` fits them: least squares on
+polychoric (polyserial, Pearson) correlations.  The tight check then compares the validation
+sample's correlations r with those the calibration estimates imply, rho: N (r - rho)' W (r - rho)
+with the validation sample's weights W, adjusted for its mean and variance with the validation
+sample's Gamma (no parameter is estimated: U = W; Satorra 1989; Asparouhov & Muthen 2010 for the
+scale shift), df = p(p-1)/2; the cross-validation index is the same least-squares discrepancy
+(Cudeck & Browne 1983 define it for any discrepancy function), beside that of the calibration
+sample's own correlations.  Every chi-square of such a replication is the scale-shifted one.
 """
 
 from __future__ import annotations
@@ -18,7 +27,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import continuous_only, load_frame, load_spec, make_options
+from cfa_tool.pipeline.inputs import load_frame, load_spec, make_options
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, sample_moments
@@ -27,6 +36,7 @@ from cfa_tool.errors import DataError, EstimationError, OptionError, estimation_
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.pipeline.continuous import fit_moments
 from cfa_tool.language.spec import Spec
+from cfa_tool.method import Weighting
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 
@@ -43,19 +53,25 @@ class Replication(Presentable):
     tight_rmsea: float
     cvi: float
     cvi_saturated: float
+    #: ordinal items: every chi-square is the scale-shifted adjusted one of the least-squares fit
+    adjusted: bool = False
 
     def to_dict(self) -> dict:
         loose = self.loose.fit.to_dict() if self.loose.fit is not None else None
+
+        def robust(result) -> dict | None:  # the adjusted figures the report shows for ordinal items
+            return result.robust.to_dict() if self.adjusted and result.robust is not None else None
+
         return clean({
             "calibration": {"data": self.calibration, "n_obs": self.calibration_result.n_obs,
                             "admissible": self.calibration_result.admissible,
                             "problems": [p.to_dict() for p in self.calibration_result.problems],
-                            "fit": self.calibration_result.fit.to_dict()},
+                            "fit": self.calibration_result.fit.to_dict(), "robust": robust(self.calibration_result)},
             "validation": {"data": self.validation, "n_obs": self.loose.n_obs},
             "loose": {"fit": loose, "admissible": self.loose.admissible,
-                      "problems": [p.to_dict() for p in self.loose.problems]},
+                      "problems": [p.to_dict() for p in self.loose.problems], "robust": robust(self.loose)},
             "tight": {"chi_square": self.tight_chi_square, "df": self.tight_df, "p_value": self.tight_p_value,
-                      "rmsea": self.tight_rmsea},
+                      "rmsea": self.tight_rmsea, "test": "scale-shifted" if self.adjusted else "normal-theory"},
             "cross_validation_index": self.cvi,
             "cross_validation_index_saturated": self.cvi_saturated,
         })
@@ -103,6 +119,54 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
     )
 
 
+def replicate_ordinal(spec: Spec, calibration, validation, method: Weighting | str = Weighting.DIAGONAL,
+                      **options) -> Replication:
+    """The replication of a model with ordinal items from each sample's OrdinalMoments (module docstring)."""
+    from cfa_tool.inference.adjusted import adjusted_test
+    from cfa_tool.pipeline.ordinal import correlations_in_order, fit_ordinal
+
+    fit_options = replace(make_options(options), diagnostics=False)
+    with estimation_of(f"calibration sample {calibration.source}"):
+        cal = fit_ordinal(spec, calibration, fit_options, method)
+    if not cal.converged:
+        raise EstimationError(f"the model did not converge in the calibration sample {calibration.source} ({cal.message})")
+    with estimation_of(f"validation sample {validation.source}"):
+        loose = fit_ordinal(spec, validation, fit_options, method)
+    pairs = np.tril_indices(len(cal.observed), -1)
+    r, gamma = correlations_in_order(validation, cal.observed)
+    weights = 1.0 / np.diag(gamma) if Weighting.parse(method, "the ordinal estimator") is Weighting.DIAGONAL \
+        else np.ones(len(pairs[0]))
+
+    def discrepancy_of(rho: np.ndarray) -> float:
+        e = r[pairs] - rho[pairs]
+        return float(e @ (weights * e))
+
+    F = discrepancy_of(cal.implied_covariance)
+    n = validation.n_obs
+    df = len(pairs[0])
+    test = adjusted_test(n * F, df, None, weights, gamma)
+    return Replication(calibration.source, validation.source, cal, loose, test.scale_shifted, df, test.scale_shifted_p,
+                       rmsea_value(test.scale_shifted, df, n), F, discrepancy_of(cal.sample_covariance), adjusted=True)
+
+
+def _ordinal_moments(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: set[str], pairwise: bool):
+    from cfa_tool.data.polychoric import ordinal_moments
+
+    check_columns(spec, [str(c) for c in frame.columns], source)
+    continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
+    return ordinal_moments(frame, spec.observed_names, source, continuous, pairwise=pairwise)
+
+
+def _ordinal_setup(spec: Spec, ordinal, ordinal_estimator, options: dict) -> tuple[set[str], Weighting | None, bool]:
+    """(ordinal items, their estimator, whether rows with gaps are kept), as ``fit`` reads them."""
+    from cfa_tool.pipeline.inputs import check_ordinal_options, ordinal_estimator_option, ordinal_items_of
+
+    items = ordinal_items_of(spec, ordinal)
+    method = ordinal_estimator_option(ordinal_estimator, items)
+    pairwise = check_ordinal_options(make_options(options)) if items else False
+    return items, method if items else None, pairwise
+
+
 def _same_file(first, second) -> bool:
     import os
 
@@ -115,21 +179,29 @@ def _same_file(first, second) -> bool:
 
 
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
-              **options) -> Replication:
-    """Calibrate on one data set, validate on another."""
-    spec = continuous_only(load_spec(model), "replicate")
+              ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, **options) -> Replication:
+    """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
+    their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too)."""
+    spec = load_spec(model)
+    ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator, options)
     if _same_file(calibration, validation):
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           "new data (or give one file as --data to split it in two random halves)")
     cal_frame, cal_source = load_frame(calibration)
     val_frame, val_source = load_frame(validation)
+    if ordinal_items:
+        return replicate_ordinal(spec, _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise),
+                                 _ordinal_moments(spec, val_frame, val_source, ordinal_items, pairwise), method, **options)
     return replicate_moments(spec, _moments(spec, cal_frame, cal_source), _moments(spec, val_frame, val_source), **options)
 
 
-def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1, **options) -> tuple[Replication, Replication]:
-    """Random halves A and B (seeded): calibrate on A and validate on B, then the reverse."""
+def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1,
+               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None,
+               **options) -> tuple[Replication, Replication]:
+    """Random halves A and B (seeded) of the complete rows: calibrate on A and validate on B, then the reverse."""
     seed = check.seed(seed)
-    spec = continuous_only(load_spec(model), "replicate")
+    spec = load_spec(model)
+    ordinal_items, method, _ = _ordinal_setup(spec, ordinal, ordinal_estimator, options)
     frame, source = load_frame(data)
     check_columns(spec, [str(c) for c in frame.columns], source)
     complete = frame.dropna(subset=list(spec.observed_names))
@@ -140,6 +212,10 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     half = len(order) // 2
     a = complete.iloc[np.sort(order[:half])]
     b = complete.iloc[np.sort(order[half:])]
+    if ordinal_items:
+        ma = _ordinal_moments(spec, a, f"{source} (half A, seed {seed})", ordinal_items, False)
+        mb = _ordinal_moments(spec, b, f"{source} (half B, seed {seed})", ordinal_items, False)
+        return (replicate_ordinal(spec, ma, mb, method, **options), replicate_ordinal(spec, mb, ma, method, **options))
     ma = sample_moments(a, spec.observed_names, f"{source} (half A, seed {seed})")
     mb = sample_moments(b, spec.observed_names, f"{source} (half B, seed {seed})")
 

@@ -114,8 +114,7 @@ def test_starting_values_far_off_still_converge(corpus, capsys):
     assert json.loads(out)["fit"]["chi_square"] == pytest.approx(json.loads(good)["fit"]["chi_square"], rel=1e-6)
 
 
-@pytest.mark.parametrize("command", [["replicate", "models/ordinal_in_compare.cfa", "--calibration", "data/good.csv",
-                                      "--validation", "data/good.csv"]])
+@pytest.mark.parametrize("command", [["align", "models/ordinal_in_compare.cfa", "--group-column", "site"]])
 def test_workflows_for_continuous_items_refuse_ordinal_declarations(command, corpus, capsys):
     before = _snapshot(corpus)
     argv = command + (["--data", "data/good.csv"] if command[0] != "replicate" else [])

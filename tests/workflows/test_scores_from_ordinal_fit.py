@@ -1,0 +1,125 @@
+"""Scores of new data with the parameters of an earlier ordinal fit, read from its JSON result.
+
+Checks: the scores from the JSON equal those the same run computes from the fit itself on the same data
+(the JSON holds every parameter the scores need); the posterior mean of a new row, with the parameters as
+the JSON reports them, is the ratio of two integrals over the normal prior times the answers'
+probabilities (category probabilities of the latent-response model, Muthen 1984; normal densities for a
+continuous item; Bock & Aitkin 1981), evaluated by scipy.integrate.quad (QUADPACK) independently of the
+tool's quadrature.
+"""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pandas as pd
+import pytest
+from scipy import integrate
+from scipy.special import ndtr
+from scipy.stats import norm
+
+import cfa_tool
+from cfa_tool.errors import DataError
+from cfa_tool.workflows.factor_scores import score_with_saved_fit, scores
+
+CUTS = (-1.2, -0.3, 0.5, 1.3)
+ONE = "factor f: q1, q2, q3, q4, y1\nordinal q1..q4\n"
+TWO = "factor f1: q1, q2, q3\nfactor f2: q4, y1, y2\nordinal q1..q4\n"
+
+
+def _draw(n: int, seed: int, mean: float = 0.0) -> pd.DataFrame:
+    rng = np.random.default_rng(seed)
+    eta = mean + rng.multivariate_normal([0, 0], [[1, 0.5], [0.5, 1]], n)
+    out = {}
+    for j in range(4):
+        latent = 0.7 * eta[:, 0 if j < 3 else 1] + rng.normal(size=n) * np.sqrt(0.51)
+        out[f"q{j + 1}"] = np.searchsorted(CUTS, latent) + 1
+    out["y1"] = 10 + 3 * (0.8 * eta[:, 1] + 0.6 * rng.normal(size=n))
+    out["y2"] = -2 + 1.5 * (0.7 * eta[:, 1] + 0.7 * rng.normal(size=n))
+    return pd.DataFrame(out)
+
+
+def _saved(result, tmp_path, name: str = "fit.json"):
+    path = tmp_path / name
+    path.write_text(json.dumps(dict(result.to_dict(), tool="cfa-tool")))
+    return path
+
+
+@pytest.mark.parametrize("model, group", [(ONE, None), (TWO, "site")])
+def test_scores_from_the_json_equal_the_scores_of_the_fit(tmp_path, model, group):
+    data = _draw(500, 1)
+    if group is not None:
+        data = pd.concat([data.assign(site="north"), _draw(400, 2, mean=0.4).assign(site="south")], ignore_index=True)
+    model_file = tmp_path / "model.cfa"
+    model_file.write_text(model)
+    own = scores(model_file, data, group=group)
+    saved = score_with_saved_fit(model_file, _saved(own.fit, tmp_path), data)
+    assert list(saved.table.columns) == list(own.table.columns)
+    np.testing.assert_allclose(saved.table.to_numpy(float), own.table.to_numpy(float), rtol=0, atol=1e-10)
+    again = own.fit.scores(data)  # the Python path from the fit result itself
+    np.testing.assert_allclose(again.table.to_numpy(float), own.table.to_numpy(float), rtol=0, atol=1e-10)
+
+
+def test_posterior_means_of_new_rows_are_the_integrals_with_the_reported_parameters(tmp_path):
+    fitted = cfa_tool.fit(ONE, _draw(800, 3))
+    path = _saved(fitted, tmp_path)
+    model_file = tmp_path / "model.cfa"
+    model_file.write_text(ONE)
+    new = _draw(30, 4)[["q1", "q2", "q3", "q4", "y1"]]
+    result = score_with_saved_fit(model_file, path, new)
+    payload = json.loads(path.read_text())
+    est = {(e["kind"], tuple(e["variables"])): e["estimate"] for e in payload["estimates"]}
+    data = payload["data"]
+    mean_y, sd_y = data["means"][data["variables"].index("y1")], data["sds"][data["variables"].index("y1")]
+    phi = est[("factor_variance", ("f",))]
+
+    def density(eta, row, power):
+        out = norm.pdf(eta, 0.0, np.sqrt(phi)) * eta**power
+        for x in ("q1", "q2", "q3", "q4"):
+            loading, theta = est[("loading", ("f", x))], est[("residual_variance", (x,))]
+            cuts = [-np.inf] + [est[("threshold", (x, str(k)))] for k in range(1, 5)] + [np.inf]
+            c = int(row[x]) - 1
+            out *= ndtr((cuts[c + 1] - loading * eta) / np.sqrt(theta)) - ndtr((cuts[c] - loading * eta) / np.sqrt(theta))
+        z = (row["y1"] - mean_y) / sd_y  # the continuous item as its polyserial correlations standardized it
+        loading, theta = est[("loading", ("f", "y1"))], est[("residual_variance", ("y1",))]
+        return out * norm.pdf(z, loading * eta, np.sqrt(theta))
+
+    for i in (0, 11, 29):
+        row = new.iloc[i]
+        lo, hi = -10 * np.sqrt(phi), 10 * np.sqrt(phi)
+        total = integrate.quad(density, lo, hi, args=(row, 0), epsabs=1e-13, epsrel=1e-10, limit=200)[0]
+        mean = integrate.quad(density, lo, hi, args=(row, 1), epsabs=1e-13, epsrel=1e-10, limit=200)[0] / total
+        second = integrate.quad(density, lo, hi, args=(row, 2), epsabs=1e-13, epsrel=1e-10, limit=200)[0] / total
+        assert result.table["f_posterior_mean"].iloc[i] == pytest.approx(mean, abs=1e-6)
+        assert result.table["f_posterior_sd"].iloc[i] == pytest.approx(np.sqrt(second - mean**2), abs=1e-6)
+
+
+def test_an_answer_the_fit_never_saw_is_an_error_naming_item_row_and_value(tmp_path):
+    fitted = cfa_tool.fit(ONE, _draw(400, 5))
+    model_file = tmp_path / "model.cfa"
+    model_file.write_text(ONE)
+    new = _draw(20, 6)
+    new.loc[4, "q3"] = 9
+    with pytest.raises(DataError, match=r"ordinal item 'q3' has the answer 9 in data row 5, which is not one of the "
+                                        r"categories the earlier fit estimated thresholds for \(1, 2, 3, 4, 5\)"):
+        score_with_saved_fit(model_file, _saved(fitted, tmp_path), new)
+
+
+def test_a_json_of_another_model_or_altered_is_refused(tmp_path):
+    from cfa_tool.errors import OptionError
+
+    fitted = cfa_tool.fit(ONE, _draw(400, 7))
+    model_file = tmp_path / "model.cfa"
+    model_file.write_text(ONE)
+    other = tmp_path / "other.cfa"
+    other.write_text("factor f: q2, q1, q3, q4, y1\nordinal q1..q4\n")  # another marker: other parameters
+    path = _saved(fitted, tmp_path)
+    with pytest.raises(OptionError, match="the fit result is not of the model"):
+        score_with_saved_fit(other, path, _draw(20, 8))
+    payload = json.loads(path.read_text())
+    payload["estimates"][-1]["estimate"] = "high"  # a threshold that is not a number
+    altered = tmp_path / "altered.json"
+    altered.write_text(json.dumps(payload))
+    with pytest.raises(OptionError, match="the fit result is not of the model"):
+        score_with_saved_fit(model_file, altered, _draw(20, 8))
