@@ -46,9 +46,52 @@ def residual_weights(D: np.ndarray | None, weights: np.ndarray) -> np.ndarray:
     return W - WD @ scaled_inverse(D @ WD) @ WD.T
 
 
-def adjusted_test(statistic: float, df: int, D: np.ndarray | None, weights: np.ndarray, gamma: np.ndarray) -> AdjustedTest:
-    """Mean-and-variance adjusted and scale-shifted statistics for N F (D: (q, pairs) or None for a model with no parameters)."""
-    return adjusted_statistics(statistic, df, residual_weights(D, weights), gamma)
+def residual_traces(weights: np.ndarray, gamma: np.ndarray, terms: list[tuple[float, np.ndarray]], with_weights: bool = True,
+                    blocks: list[slice] | None = None) -> tuple[float, float]:
+    """(tr(U Gamma), tr((U Gamma)^2)) for U = [W] - sum_r s_r W D_r' (D_r W D_r')^-1 D_r W, ``terms`` the pairs
+    (s_r, D_r), D_r of shape (q_r, statistics), and W = diag(weights) included when ``with_weights``: a model's
+    U of :func:`residual_weights` is one term with s = 1, the difference of two nested models' (Satorra 2000) two
+    terms, s = 1 and -1, without W.  Expanding the products of U Gamma gives traces of q x q matrices only
+    (P_r = D_r W, A_r = P_r D_r', C_rt = P_r Gamma P_t'):
+
+        tr(U Gamma)     = tr(W Gamma) - sum_r s_r tr(A_r^-1 C_rr)
+        tr((U Gamma)^2) = tr((W Gamma)^2) - 2 sum_r s_r tr(A_r^-1 P_r Gamma W Gamma P_r')
+                          + sum_rt s_r s_t tr(A_r^-1 C_rt A_t^-1 C_tr),
+
+    so that no statistics x statistics product is formed (thousands of statistics with several groups of
+    ordinal items).  ``blocks``: slices of the statistics over which Gamma is block-diagonal (the groups)."""
+    blocks = blocks or [slice(0, len(weights))]
+
+    def times_gamma(X: np.ndarray) -> np.ndarray:
+        out = np.empty_like(X)
+        for b in blocks:
+            out[:, b] = X[:, b] @ gamma[b, b]
+        return out
+
+    a1 = a2 = 0.0
+    if with_weights:
+        a1 = float(weights @ np.diagonal(gamma))
+        a2 = float(sum(np.sum(gamma[b, b] ** 2 * np.outer(weights[b], weights[b])) for b in blocks))
+    pieces = []
+    for sign, D in terms:
+        P = D * weights[None, :]
+        pieces.append((sign, P, times_gamma(P), scaled_inverse(P @ D.T)))
+    for r, (sign, P, PG, inverse) in enumerate(pieces):
+        a1 -= sign * float(np.sum(inverse * (PG @ P.T)))
+        if with_weights:
+            a2 -= 2.0 * sign * float(np.sum(inverse * ((PG * weights[None, :]) @ PG.T)))
+        for sign_t, P_t, _, inverse_t in pieces:
+            C = PG @ P_t.T
+            a2 += sign * sign_t * float(np.sum((inverse @ C) * (inverse_t @ C.T).T))
+    return a1, a2
+
+
+def adjusted_test(statistic: float, df: int, D: np.ndarray | None, weights: np.ndarray, gamma: np.ndarray,
+                  blocks: list[slice] | None = None) -> AdjustedTest:
+    """Mean-and-variance adjusted and scale-shifted statistics for N F (D: (q, pairs) or None for a model with no
+    parameters; ``blocks`` as in :func:`residual_traces`)."""
+    terms = [] if D is None or len(D) == 0 else [(1.0, D)]
+    return adjusted_from_traces(statistic, df, *residual_traces(weights, gamma, terms, True, blocks))
 
 
 def adjusted_statistics(statistic: float, df: float, U: np.ndarray, gamma: np.ndarray) -> AdjustedTest:
@@ -57,8 +100,11 @@ def adjusted_statistics(statistic: float, df: float, U: np.ndarray, gamma: np.nd
     Also serves the difference of two nested fits, with U = U_restricted - U_general evaluated at
     the restricted estimates (Satorra 2000; Asparouhov & Muthen 2006)."""
     UG = U @ gamma
-    a1 = float(np.trace(UG))
-    a2 = float(np.sum(UG * UG.T))
+    return adjusted_from_traces(statistic, df, float(np.trace(UG)), float(np.sum(UG * UG.T)))
+
+
+def adjusted_from_traces(statistic: float, df: float, a1: float, a2: float) -> AdjustedTest:
+    """The adjustments from a1 = tr(U Gamma) and a2 = tr((U Gamma)^2) (Satorra & Bentler 1994; Asparouhov & Muthen 2010)."""
     if df <= 0 or a1 <= 0 or a2 <= 0:  # a saturated model has nothing to test
         nan = float("nan")
         return AdjustedTest(statistic, df, statistic, nan, statistic, nan, nan, nan)
