@@ -61,13 +61,6 @@ def residual_traces(weights: np.ndarray, gamma: np.ndarray, terms: list[tuple[fl
     so that no statistics x statistics product is formed (thousands of statistics with several groups of
     ordinal items).  ``blocks``: slices of the statistics over which Gamma is block-diagonal (the groups)."""
     blocks = blocks or [slice(0, len(weights))]
-
-    def times_gamma(X: np.ndarray) -> np.ndarray:
-        out = np.empty_like(X)
-        for b in blocks:
-            out[:, b] = X[:, b] @ gamma[b, b]
-        return out
-
     a1 = a2 = 0.0
     if with_weights:
         a1 = float(weights @ np.diagonal(gamma))
@@ -75,15 +68,35 @@ def residual_traces(weights: np.ndarray, gamma: np.ndarray, terms: list[tuple[fl
     pieces = []
     for sign, D in terms:
         P = D * weights[None, :]
-        pieces.append((sign, P, times_gamma(P), scaled_inverse(P @ D.T)))
-    for r, (sign, P, PG, inverse) in enumerate(pieces):
-        a1 -= sign * float(np.sum(inverse * (PG @ P.T)))
+        rows = _rows_by_block(P, blocks)
+        P_parts = [(r, P[r, b]) for r, b in zip(rows, blocks)]
+        PG_parts = [(r, Pb @ gamma[b, b]) for (r, Pb), b in zip(P_parts, blocks)]
+        A = _sum_over_blocks(P_parts, [(r, D[r, b]) for r, b in zip(rows, blocks)], len(D), len(D))
+        pieces.append((sign, P_parts, PG_parts, scaled_inverse(A)))
+    for sign, P_parts, PG_parts, inverse in pieces:
+        q = len(inverse)
+        a1 -= sign * float(np.sum(inverse * _sum_over_blocks(PG_parts, P_parts, q, q)))
         if with_weights:
-            a2 -= 2.0 * sign * float(np.sum(inverse * ((PG * weights[None, :]) @ PG.T)))
+            weighted = [(r, PGb * weights[b][None, :]) for (r, PGb), b in zip(PG_parts, blocks)]
+            a2 -= 2.0 * sign * float(np.sum(inverse * _sum_over_blocks(weighted, PG_parts, q, q)))
         for sign_t, P_t, _, inverse_t in pieces:
-            C = PG @ P_t.T
+            C = _sum_over_blocks(PG_parts, P_t, q, len(inverse_t))
             a2 += sign * sign_t * float(np.sum((inverse @ C) * (inverse_t @ C.T).T))
     return a1, a2
+
+
+def _rows_by_block(X: np.ndarray, blocks: list[slice]) -> list[np.ndarray]:
+    """For each block of columns, the rows of X with an entry there that is not zero (a parameter of one group
+    has derivatives in that group's statistics only)."""
+    return [np.flatnonzero(np.any(X[:, b] != 0.0, axis=1)) for b in blocks]
+
+
+def _sum_over_blocks(left: list, right: list, n_left: int, n_right: int) -> np.ndarray:
+    """sum_b L_b R_b' for the blocks' (rows, L_b) and (rows, R_b), placed at their rows: X Y' of the full matrices."""
+    out = np.zeros((n_left, n_right))
+    for (rows_l, L), (rows_r, R) in zip(left, right):
+        out[np.ix_(rows_l, rows_r)] += L @ R.T
+    return out
 
 
 def adjusted_test(statistic: float, df: int, D: np.ndarray | None, weights: np.ndarray, gamma: np.ndarray,
@@ -116,11 +129,18 @@ def adjusted_from_traces(statistic: float, df: float, a1: float, a2: float) -> A
                         float(dist.chi2_sf(mv, d_star)), a1 / df, float(shift_scale), float(df - shift_scale * a1))
 
 
-def robust_covariance(D: np.ndarray, weights: np.ndarray, gamma: np.ndarray, n_obs: int) -> np.ndarray:
-    """(D'WD)^-1 D'W Gamma W D (D'WD)^-1 / N."""
+def robust_covariance(D: np.ndarray, weights: np.ndarray, gamma: np.ndarray, n_obs: int,
+                      blocks: list[slice] | None = None) -> np.ndarray:
+    """(D'WD)^-1 D'W Gamma W D (D'WD)^-1 / N; ``blocks``: slices of the statistics over which Gamma is
+    block-diagonal (the groups), whose products are then taken block by block."""
     WD = D * weights[None, :]
     bread = scaled_inverse(WD @ D.T)
-    return bread @ (WD @ gamma @ WD.T) @ bread / n_obs
+    if blocks is None:
+        meat = WD @ gamma @ WD.T
+    else:
+        parts = [(r, WD[r, b]) for r, b in zip(_rows_by_block(WD, blocks), blocks)]
+        meat = _sum_over_blocks([(r, Pb @ gamma[b, b]) for (r, Pb), b in zip(parts, blocks)], parts, len(D), len(D))
+    return bread @ meat @ bread / n_obs
 
 
 def adjusted_fit(test: AdjustedTest, baseline: AdjustedTest, df: int, base_df: int, n_obs: int, groups: int = 1) -> RobustFit:

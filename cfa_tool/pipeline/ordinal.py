@@ -413,11 +413,11 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     if est.converged:
         D, e, w, gamma = obj.stacked(theta)
         check_information_rank(D @ (D.T * w[:, None]), table.free_labels)
-        cov_theta = robust_covariance(D, w, gamma, n)
+        slices = obj.group_slices()
+        cov_theta = robust_covariance(D, w, gamma, n, slices)
         inference = wald_inference(values, model.J, cov_theta)
         df = est.df
         T = est.statistic
-        slices = obj.group_slices()
         K = obj.n_thresholds
         base_df = G * len(pairs[0])
         T_base = 0.0

@@ -9,7 +9,7 @@ import numpy as np
 import pytest
 from scipy.linalg import block_diag
 
-from cfa_tool.inference.adjusted import residual_traces, residual_weights
+from cfa_tool.inference.adjusted import residual_traces, residual_weights, robust_covariance
 
 
 def _problem(seed: int = 3):
@@ -26,6 +26,8 @@ def _problem(seed: int = 3):
     gamma = block_diag(*gammas)
     weights = 1.0 / np.diag(gamma)
     general = rng.normal(size=(10, start))
+    general[:3, blocks[0]] = 0.0  # parameters without derivatives in some groups, as in a multi-group model
+    general[7:, blocks[2]] = 0.0
     restricted = general[:6] + 0.1 * general[6:].sum(axis=0)  # a model with fewer parameters
     return weights, gamma, blocks, restricted, general
 
@@ -46,3 +48,9 @@ def test_traces_of_one_model_and_of_a_difference(blocked):
     difference = residual_traces(weights, gamma, [(1.0, restricted), (-1.0, general)], False, blocks)
     U = residual_weights(restricted, weights) - residual_weights(general, weights)
     np.testing.assert_allclose(difference, _dense(U, gamma), rtol=1e-9)
+
+
+def test_sandwich_taken_block_by_block_is_the_same():
+    weights, gamma, blocks, _, general = _problem()
+    np.testing.assert_allclose(robust_covariance(general, weights, gamma, 100, blocks),
+                               robust_covariance(general, weights, gamma, 100), rtol=1e-12, atol=1e-15)
