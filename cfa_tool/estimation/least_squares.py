@@ -19,7 +19,10 @@ identity (unweighted).  N F is the statistic that the mean-and-variance adjustme
 
       tau~_jc = (tau_jc - mu_j) / sqrt(Sigma_jj),      rho_ij = Sigma_ij / sqrt(Sigma_ii Sigma_jj).
 
-Scoring uses 2 sum_g (N_g/N) D_g W_g D_g', the expected second derivatives for a correct model.
+Scoring uses 2 sum_g (N_g/N) D_g W_g D_g', the expected second derivatives for a correct model (the
+Gauss-Newton matrix of weighted least squares; Browne 1984, Muthen 1984); Newton's steps near the minimum use
+the exact Hessian, that matrix plus the residuals times the second derivatives of the statistics, in closed
+form for both forms (:meth:`OrdinalLeastSquares.observed_hessian`).
 """
 
 from __future__ import annotations
@@ -72,14 +75,14 @@ class _GroupPart:
     @staticmethod
     def of(model: StructuredModel, g: int, n_thresholds: int) -> _GroupPart:
         J, _ = model.table.mapping()
-        codes, rows, cols = model.table.entry_arrays()
+        all_codes, all_rows, all_cols = model.table.entry_arrays()
         mine = model.groups == g
         touched = np.flatnonzero(J[mine].any(axis=0))
-        entries = np.flatnonzero(mine & J.any(axis=1) & (codes < 6))
-        codes, rows, cols = codes[entries], rows[entries], cols[entries]
-        thresholds = np.flatnonzero(mine & (model.table.entry_arrays()[0] == 6))
+        entries = np.flatnonzero(mine & J.any(axis=1) & (all_codes < 6))
+        codes, rows, cols = all_codes[entries], all_rows[entries], all_cols[entries]
+        thresholds = np.flatnonzero(mine & (all_codes == 6))
         d_tau = np.zeros((len(touched), n_thresholds))
-        d_tau[:, model.table.entry_arrays()[1][thresholds]] = J[np.ix_(thresholds, touched)].T
+        d_tau[:, all_rows[thresholds]] = J[np.ix_(thresholds, touched)].T
         loading, mean = np.flatnonzero(codes == 0), np.flatnonzero(codes == 5)
         a, b = np.nonzero(cols[loading][:, None] == rows[mean][None, :])
         return _GroupPart(touched, codes, rows, cols, J[np.ix_(entries, touched)].T, d_tau,
