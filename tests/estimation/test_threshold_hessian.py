@@ -11,7 +11,8 @@
   weighted least-squares problem of Muthen, du Toit & Spisic (1997) on that group's thresholds and
   polychoric correlations, written out below independently of the package (Sigma = L Phi L' + I, the
   marker loading 1, thresholds tau / sqrt(Sigma_jj)) and minimised by scipy.optimize.minimize (BFGS);
-  the minimum and the estimates must agree with the package's two-group fit.
+  the minimum and the estimates must agree with the package's two-group fit;
+* the search ends within its tolerance of the exact minimum (found by further Newton steps).
 """
 
 from __future__ import annotations
@@ -147,3 +148,15 @@ def test_each_groups_configural_fit_equals_an_independent_minimisation():
         mine = [est.theta[labels.index(f"loading({f}, {y}) [s{g}]")]
                 for f, y in (("f", "y2"), ("f", "y3"), ("f", "y4"), ("g", "y6"), ("g", "y7"))]
         np.testing.assert_allclose(mine, loadings, rtol=0, atol=1e-5)
+
+
+def test_the_fit_ends_at_the_minimum():
+    # the exact minimum, found by further Newton steps with the closed-form Hessian until the gradient vanishes:
+    # the search ended within its tolerance of it (Newton decrement g'H^-1 g below 1e-14, about 2 (F - F_min))
+    est = _fit(TWO_FACTORS + "invariance metric\n")
+    obj, x = est.objective, est.theta.copy()
+    for _ in range(4):
+        x = x - np.linalg.solve(obj.observed_hessian(x), obj.gradient(x))
+    assert np.abs(obj.gradient(x)).max() < 1e-12
+    assert 0.0 <= obj.value(est.theta) - obj.value(x) < 1e-14
+    np.testing.assert_allclose(est.theta, x, rtol=0, atol=1e-5)
