@@ -6,7 +6,7 @@ import argparse
 from pathlib import Path
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import add_report_options, check_output, emit, inputs_of
+from cfa_tool.commands.common import add_report_options, check_output, emit, inputs_of, progress
 
 
 def add_parser(sub) -> None:
@@ -32,8 +32,10 @@ def run(args: argparse.Namespace) -> int:
     from cfa_tool.workflows.invariance import invariance
 
     check_output(args, inputs_of(args))
-    result = invariance(Path(args.model), args.data, args.group, reference_group=args.reference_group,
-                        partial=args.partial, alpha=args.alpha, decide_by=args.decide_by, sheet=args.sheet,
-                        missing_codes=args.missing_codes, keep=args.keep, ordinal=O.ordinal_arg(args.ordinal),
-                        ordinal_estimator=args.ordinal_estimator, missing=args.missing, **O.design_args(args))
+    with progress("invariance: fits") as advance:
+        result = invariance(Path(args.model), args.data, args.group, reference_group=args.reference_group,
+                            partial=args.partial, alpha=args.alpha, decide_by=args.decide_by, sheet=args.sheet,
+                            missing_codes=args.missing_codes, keep=args.keep, ordinal=O.ordinal_arg(args.ordinal),
+                            ordinal_estimator=args.ordinal_estimator, missing=args.missing, progress=advance,
+                            **O.design_args(args))
     return emit(args, result)

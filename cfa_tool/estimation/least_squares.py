@@ -19,7 +19,10 @@ identity (unweighted).  N F is the statistic that the mean-and-variance adjustme
 
       tau~_jc = (tau_jc - mu_j) / sqrt(Sigma_jj),      rho_ij = Sigma_ij / sqrt(Sigma_ii Sigma_jj).
 
-Scoring uses 2 sum_g (N_g/N) D_g W_g D_g', the expected second derivatives for a correct model.
+Scoring uses 2 sum_g (N_g/N) D_g W_g D_g', the expected second derivatives for a correct model (the
+Gauss-Newton matrix of weighted least squares; Browne 1984, Muthen 1984); Newton's steps near the minimum use
+the exact Hessian, that matrix plus the residuals times the second derivatives of the statistics, in closed
+form for both forms (:meth:`OrdinalLeastSquares.observed_hessian`).
 """
 
 from __future__ import annotations
@@ -31,7 +34,7 @@ from scipy.linalg import block_diag
 
 from cfa_tool.estimation.objective import Evaluation
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
-from cfa_tool.model.rank_two import basis_vectors, second_derivative_contraction
+from cfa_tool.model.rank_two import SecondOrderLayout, basis_vectors, second_derivative_contraction, second_order_layout
 
 
 @dataclass(frozen=True, eq=False)
@@ -48,6 +51,42 @@ def group_statistics(values: np.ndarray, gamma: np.ndarray, n_obs: int, diagonal
     """Statistics with diagonal weights 1 / diag(Gamma) (``diagonal``) or unit weights."""
     weights = 1.0 / np.diag(gamma) if diagonal else np.ones(len(values))
     return GroupStatistics(values, weights, gamma, n_obs)
+
+
+@dataclass(frozen=True, eq=False)
+class _GroupPart:
+    """Index arrays of one group with thresholds as parameters, fixed by the model: the parameters its
+    statistics depend on (``touched``), its moment-matrix entries that depend on them (matrix codes, rows,
+    columns), the map from those parameters to the entries (``Jt``, touched x entries), the thresholds'
+    derivatives (touched x thresholds), where tr(M d2Sigma) lands among the entries, and the pairs
+    (loading L[i, f], latent mean M[f]) whose second derivative of mu_i is 1."""
+
+    touched: np.ndarray
+    codes: np.ndarray
+    rows: np.ndarray
+    cols: np.ndarray
+    Jt: np.ndarray
+    d_tau: np.ndarray
+    second_order: SecondOrderLayout
+    mean_loading: np.ndarray  # positions among the entries
+    mean_mean: np.ndarray
+    mean_item: np.ndarray  # the item i of each pair
+
+    @staticmethod
+    def of(model: StructuredModel, g: int, n_thresholds: int) -> _GroupPart:
+        J, _ = model.table.mapping()
+        all_codes, all_rows, all_cols = model.table.entry_arrays()
+        mine = model.groups == g
+        touched = np.flatnonzero(J[mine].any(axis=0))
+        entries = np.flatnonzero(mine & J.any(axis=1) & (all_codes < 6))
+        codes, rows, cols = all_codes[entries], all_rows[entries], all_cols[entries]
+        thresholds = np.flatnonzero(mine & (all_codes == 6))
+        d_tau = np.zeros((len(touched), n_thresholds))
+        d_tau[:, all_rows[thresholds]] = J[np.ix_(thresholds, touched)].T
+        loading, mean = np.flatnonzero(codes == 0), np.flatnonzero(codes == 5)
+        a, b = np.nonzero(cols[loading][:, None] == rows[mean][None, :])
+        return _GroupPart(touched, codes, rows, cols, J[np.ix_(entries, touched)].T, d_tau,
+                          second_order_layout(codes, rows, cols, model.p, model.m), loading[a], mean[b], rows[loading[a]])
 
 
 class OrdinalLeastSquares:
@@ -72,6 +111,8 @@ class OrdinalLeastSquares:
         positions = {par.row: item[par.variables[0]] for par in table.parameters if par.matrix == "K" and par.group == 0}
         self.item_of = np.array([positions[k] for k in range(len(positions))], dtype=int)
         self.n_thresholds = len(self.item_of)
+        if thresholds:
+            self._parts = [_GroupPart.of(model, g, self.n_thresholds) for g in range(model.n_groups)]
 
     def with_targets(self, values: list[np.ndarray]) -> OrdinalLeastSquares:
         """The same objective for other statistics of the same shape (weights and Gamma kept), e.g. the
@@ -123,8 +164,24 @@ class OrdinalLeastSquares:
         """d sigma_g / d theta, shape (q, statistics)."""
         if not self.thresholds:
             return self._unit_jacobian(moments[0], g)
-        d_sigma, d_mu = self.model.jacobian(theta, g)
-        return self._transform(moments, d_sigma, d_mu, self.model.threshold_jacobian(g))
+        part = self._parts[g]
+        D = np.zeros((len(theta), self.n_thresholds + len(self.pairs[0])))
+        D[part.touched] = self._transform(moments, *self._moment_derivatives(moments[0], part))
+        return D
+
+    def _touched_jacobian(self, moments, g: int) -> tuple[np.ndarray, np.ndarray]:
+        """(the parameters group g's statistics depend on, d sigma_g / d those parameters): the rows of
+        :meth:`_jacobian` that are not zero (one group's parameters of a configural model, and the shared ones)."""
+        if not self.thresholds:
+            return slice(None), self._unit_jacobian(moments[0], g)
+        part = self._parts[g]
+        return part.touched, self._transform(moments, *self._moment_derivatives(moments[0], part))
+
+    @staticmethod
+    def _moment_derivatives(mats, part: _GroupPart) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """d Sigma, d mu and d tau with respect to the parameters ``part`` touches: (k, p, p), (k, p), (k, K)."""
+        d_sigma, d_mu = entry_derivatives(mats, part.codes, part.rows, part.cols)
+        return np.tensordot(part.Jt, d_sigma, axes=1), part.Jt @ d_mu, part.d_tau
 
     def _unit_jacobian(self, mats, g: int) -> np.ndarray:
         """d Sigma_ij / d theta for the pairs below the diagonal.  Each entry's derivative of Sigma is
@@ -173,11 +230,14 @@ class OrdinalLeastSquares:
             if moments is None:
                 return None
             e = self.targets[g] - self._statistics(moments)
-            D = self._jacobian(theta, g, moments)
+            touched, D = self._touched_jacobian(moments, g)
             WD = D * (share * self.w[g])[None, :]
             value += share * float(e @ (self.w[g] * e))
-            gradient -= 2.0 * WD @ e
-            information += 2.0 * WD @ D.T
+            gradient[touched] -= 2.0 * WD @ e
+            if isinstance(touched, slice):
+                information += 2.0 * WD @ D.T
+            else:
+                information[np.ix_(touched, touched)] += 2.0 * WD @ D.T
         return Evaluation(value, gradient, information)
 
     def gradient(self, theta: np.ndarray) -> np.ndarray:
@@ -189,20 +249,23 @@ class OrdinalLeastSquares:
             if moments is None:
                 return np.full(len(theta), np.nan)
             e = self.targets[g] - self._statistics(moments)
-            total -= 2.0 * share * (self._jacobian(theta, g, moments) @ (self.w[g] * e))
+            touched, D = self._touched_jacobian(moments, g)
+            total[touched] -= 2.0 * share * (D @ (self.w[g] * e))
         return total
 
     def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
-        """Second derivatives of F in closed form, for latent responses of unit variance without
-        higher-order factors (None otherwise):
+        """Second derivatives of F in closed form, for models without higher-order factors (None otherwise;
+        thresholds as parameters: :meth:`_threshold_hessian`).  For latent responses of unit variance:
 
             H = sum_g (N_g/N) [2 D W D' - 2 tr(M d2Sigma / dtheta dtheta')],   M_ij = M_ji = w_k e_k / 2
 
         for the pair k = (i, j), e = s - sigma the residuals; the second derivatives of Sigma are those
         of maximum likelihood (Neudecker & Satorra 1991; :func:`cfa_tool.model.rank_two.second_derivative_contraction`)."""
         model = self.model
-        if self.thresholds or model.higher_order:
+        if model.higher_order:
             return None
+        if self.thresholds:
+            return self._threshold_hessian(theta)
         q = len(theta)
         H = np.zeros((q, q))
         for g, share in enumerate(self.weights):
@@ -217,6 +280,81 @@ class OrdinalLeastSquares:
                 second = J.T @ second @ J
             D = self._unit_jacobian(mats, g)
             H += share * (2.0 * (D * self.w[g]) @ D.T - 2.0 * second)
+        return 0.5 * (H + H.T)
+
+    def _threshold_hessian(self, theta: np.ndarray) -> np.ndarray | None:
+        """The exact Hessian of F with thresholds as parameters (no higher-order factors), or None outside
+        the region where F is defined.  With c = (N_g/N) W_g e_g and D_g = d sigma_g / d theta,
+
+            H = sum_g [2 (N_g/N) D_g W_g D_g' - 2 sum_k c_k d2 sigma_k / dtheta dtheta'],
+
+        the Gauss-Newton term 2 D'WD of weighted least squares (Browne 1984; Muthen 1984) plus the
+        residuals times the statistics' curvature, which vanishes only for a model that fits exactly.  Each
+        statistic is a function of a few moments of the latent responses (tau~ = (tau - mu_j) v_j^-1/2,
+        rho = Sigma_ij (v_i v_j)^-1/2 with v = diag Sigma; Muthen & Asparouhov 2002), so by the chain rule
+        its curvature is
+
+            sum_a (df/da) d2a + sum_ab (d2f/da db) da db',
+
+        a = Sigma_ij, v_i, mu_j, tau.  The first sum contracts the second derivatives of Sigma = L P L' + T
+        with a symmetric matrix M (Neudecker & Satorra 1991; :func:`second_derivative_contraction`) and
+        those of mu = N + L M (d2 mu_i / dL_if dM_f = 1) with a vector m.  In the second only
+        products with dv are not zero (tau is linear in theta, Sigma_ij and mu_j enter linearly), so it is
+        Z dV' + dV Z' + dV B dV' for dV = d diag(Sigma) / dtheta, with, from the partial derivatives of tau~
+        and rho,
+
+            Z_i = -sum_j c_ij dSigma_ij / (2 v_i s_i s_j) - sum_k(i) c_k (dtau_k - dmu_i) / (2 v_i^3/2),
+            B_ij = c_ij rho_ij / (4 v_i v_j),  B_ii = sum_j 3 c_ij rho_ij / (4 v_i^2) + sum_k(i) 3 c_k d_k / (4 v_i^5/2),
+
+        s = sqrt(v), d_k = tau_k - mu_i, k(i) the thresholds of item i.  Checked against differences of
+        the analytic gradient in tests/estimation/test_threshold_hessian.py."""
+        q = len(theta)
+        H = np.zeros((q, q))
+        i, j = self.pairs
+        it = self.item_of
+        p, K = self.model.p, self.n_thresholds
+        for g, share in enumerate(self.weights):
+            moments = self._latent_moments(theta, g)
+            if moments is None:
+                return None
+            mats, sigma, var, mu, tau = moments
+            part = self._parts[g]
+            d_sigma, d_mu, d_tau = self._moment_derivatives(mats, part)
+            D = self._transform(moments, d_sigma, d_mu, d_tau)
+            c = share * self.w[g] * (self.targets[g] - self._statistics(moments))
+            c_thr, c_rho = c[:K], c[K:]
+            sd = np.sqrt(var)
+            rho = sigma[i, j] / (sd[i] * sd[j])
+            dev = tau - mu[it]
+            # first derivatives of the statistics with respect to the moments, weighted by c
+            M = np.zeros((p, p))
+            M[i, j] = M[j, i] = c_rho / (2.0 * sd[i] * sd[j])
+            half = c_rho * rho
+            M[np.diag_indices(p)] = (-(np.bincount(i, half, p) + np.bincount(j, half, p)) / (2.0 * var)
+                                     - np.bincount(it, c_thr * dev, p) / (2.0 * var * sd))
+            m = -np.bincount(it, c_thr, p) / sd
+            second = second_derivative_contraction(part.second_order, M, mats.L, mats.P)
+            np.add.at(second, (part.mean_loading, part.mean_mean), m[part.mean_item])
+            np.add.at(second, (part.mean_mean, part.mean_loading), m[part.mean_item])
+            curvature = part.Jt @ second @ part.Jt.T
+            # second derivatives of the statistics with respect to the moments, weighted by c
+            d_var = np.diagonal(d_sigma, axis1=1, axis2=2)
+            A = np.zeros((p, p))
+            A[i, j] = -c_rho / (2.0 * var[i] * sd[i] * sd[j])
+            A[j, i] = -c_rho / (2.0 * var[j] * sd[i] * sd[j])
+            Z = np.einsum("qab,ab->qa", d_sigma, A)
+            per_threshold = -c_thr / (2.0 * var[it] * sd[it])
+            spread = np.zeros((K, p))
+            spread[np.arange(K), it] = per_threshold
+            Z += d_tau @ spread - d_mu * np.bincount(it, per_threshold, p)
+            B = np.zeros((p, p))
+            B[i, j] = B[j, i] = half / (4.0 * var[i] * var[j])
+            B[np.diag_indices(p)] = (0.75 * (np.bincount(i, half, p) + np.bincount(j, half, p)) / var**2
+                                     + 0.75 * np.bincount(it, c_thr * dev, p) / (var**2 * sd))
+            ZV = Z @ d_var.T
+            curvature += ZV + ZV.T + d_var @ B @ d_var.T
+            block = 2.0 * (D * (share * self.w[g])) @ D.T - 2.0 * curvature
+            H[np.ix_(part.touched, part.touched)] += block
         return 0.5 * (H + H.T)
 
     # -- stacked pieces for robust inference

@@ -27,7 +27,7 @@ from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.errors import CfaError, OptionError
 from cfa_tool.estimation.least_squares import MixedLeastSquares, OrdinalLeastSquares, group_statistics
 from cfa_tool.estimation.strategy import Alternative, search
-from cfa_tool.inference.adjusted import (AdjustedTest, adjusted_fit, adjusted_statistics, adjusted_test, residual_weights,
+from cfa_tool.inference.adjusted import (AdjustedTest, adjusted_fit, adjusted_from_traces, adjusted_test, residual_traces,
                                          robust_covariance)
 from cfa_tool.inference.standard_errors import wald_inference
 from cfa_tool.language.checks import exogenous_factors
@@ -408,11 +408,14 @@ def ordinal_difference(restricted: OrdinalEstimation, general: OrdinalEstimation
     D0, _, w, gamma = restricted.objective.stacked(restricted.theta)
     if general_derivatives is None:
         entries = restricted.model.entry_values(restricted.theta)
-        theta1, *_ = np.linalg.lstsq(general.model.J, entries - general.model.offset, rcond=None)
+        J = general.model.J  # of full column rank: the normal equations give the least-squares solution
+        theta1 = np.linalg.solve(J.T @ J, J.T @ (entries - general.model.offset))
         general_derivatives = general.objective.stacked(theta1)[0]
-    U = residual_weights(D0, w) - residual_weights(general_derivatives, w)
+    # U_d = U_restricted - U_general: the weights W cancel
+    traces = residual_traces(w, gamma, [(1.0, D0), (-1.0, general_derivatives)], False,
+                             restricted.objective.group_slices())
     diff = restricted.statistic - general.statistic
-    return adjusted_statistics(max(diff, 0.0), restricted.df - general.df, U, gamma)
+    return adjusted_from_traces(max(diff, 0.0), restricted.df - general.df, *traces)
 
 
 def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, options, group_column: str,
@@ -451,11 +454,11 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     if est.converged:
         D, e, w, gamma = obj.stacked(theta)
         check_information_rank(D @ (D.T * w[:, None]), table.free_labels)
-        cov_theta = robust_covariance(D, w, gamma, n)
+        slices = obj.group_slices()
+        cov_theta = robust_covariance(D, w, gamma, n, slices)
         inference = wald_inference(values, model.J, cov_theta)
         df = est.df
         T = est.statistic
-        slices = obj.group_slices()
         K = obj.n_thresholds + 2 * len(getattr(obj, "continuous", ()))  # the baseline leaves these saturated
         base_df = G * len(pairs[0])
         T_base = 0.0
@@ -472,8 +475,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
             sd = np.sqrt(np.diag(sigma))
             latent_correlations.append((moments[g].correlations, sigma / np.outer(sd, sd), moments[g].n_obs))
         overall_srmr, srmrs = srmr(latent_correlations, correlations=True)
-        test = adjusted_test(T, df, D, w, gamma)
-        base = adjusted_test(T_base, base_df, D_base, w, gamma)
+        test = adjusted_test(T, df, D, w, gamma, slices)
+        base = adjusted_test(T_base, base_df, D_base, w, gamma, slices)
         fit = _least_squares_fit(T, df, T_base, base_df, n, table.n_free, overall_srmr, G)
         robust = adjusted_fit(test, base, df, base_df, n, G)
         if modification and df > 0 and options.modification_indices:

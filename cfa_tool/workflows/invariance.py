@@ -27,6 +27,7 @@ from cfa_tool.pipeline.continuous import assess, estimate
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
+from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.workflows.nesting import DifferenceTest, difference_test
 from cfa_tool.views import Presentable
 from cfa_tool.method import DecisionRule  # (declared with the other choices; imported from here too)
@@ -202,11 +203,12 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None,
                decide_by: str | DecisionRule = DecisionRule.DIFFERENCE_TEST, weights: str | None = None,
                cluster: str | None = None, strata: str | None = None, weight_kind: str | None = None,
-               **options) -> InvarianceResult:
+               progress=None, **options) -> InvarianceResult:
     """Fit the invariance ladder; with ``partial='auto'`` free the likeliest culprits until each step holds.
     ``decide_by`` names how each step is judged (:class:`DecisionRule`).  A sampling design (``weights``,
     ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights every step, whose difference tests are
-    then the scaled ones of the design-based statistics.
+    then the scaled ones of the design-based statistics.  ``progress(done, more)``, when given, hears of each
+    fit: the ladder's levels are announced at the start and every refit of the partial search when it is decided.
 
     With ordinal items (an 'ordinal' statement or ``ordinal``) the ladder is configural, thresholds,
     metric, scalar, strict, fitted by least squares on thresholds and polychoric correlations; continuous items
@@ -250,22 +252,28 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         notes = list(missing_notes) + list(notes)
         ladder = NormalLadder(design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
     labels = tuple(label for label, _ in groups)
+    threads = blas_threads_for(len(spec.observed_names))  # the fits' matrices are small: one BLAS thread (numerics.threads)
 
     steps: list[InvarianceStep] = []
     freed: list[FreedParameter] = []
     exceptions: list[ParameterRef] = list(spec.noninvariant)
     previous = None  # (estimation, result) of the step below
     start = None
+    if progress is not None:
+        progress(0, len(ladder.levels))
     for level, classes, kinds in ladder.levels:
         full = None  # (result, test, holds) with every equality of the step
         stopped = ""
         freed_here: list[FreedParameter] = []
         while True:
+            if progress is not None and freed_here:  # a refit of the partial search
+                progress(0, 1)
             # exemptions apply from the level that holds their class equal
             level_spec = replace(spec, invariant=classes, noninvariant=tuple(r for r in exceptions
                                                                           if _exempts_a_class_of(r, classes)))
-            est = ladder.estimate(level_spec, groups, fit_options, start)
-            result = ladder.assess(level_spec, groups, est, fit_options, group)
+            with threads:
+                est = ladder.estimate(level_spec, groups, fit_options, start)
+                result = ladder.assess(level_spec, groups, est, fit_options, group)
             if not result.converged:
                 why = result.problems[0] if result.problems else None
                 reason = (f" ({result.message}). {why.advice}" if why is not None else f" ({result.message})")
@@ -276,11 +284,13 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                            + (", and the partial search could not run at this step" if partial != "none" else ""))
                 return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, (stopped,) + tuple(notes),
                                         rule)
-            test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
+            with threads:
+                test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
             holds = configural_fits(result) if test is None else _step_holds(rule, test, alpha, result, previous[1], level)
             if full is None:
                 full = (result, test, holds)
-            culprits = tuple(ladder.constraint_tests(est, kinds)) if kinds else ()
+            with threads:
+                culprits = tuple(ladder.constraint_tests(est, kinds)) if kinds else ()
             culprits = _one_per_constraint(tuple(c for c in culprits if _may_free(c, exceptions, level_spec, kinds)),
                                            labels)
             if holds:
@@ -291,6 +301,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 stopped = STOP_NOTHING_LEFT
             elif len(freed_here) >= MAX_FREED_PER_STEP:
                 stopped = STOP_CAP.format(cap=MAX_FREED_PER_STEP)
+            if progress is not None:
+                progress(1)
             if stopped:
                 break
             top = culprits[0]
