@@ -165,7 +165,7 @@ class OrdinalLeastSquares:
         if not self.thresholds:
             return self._unit_jacobian(moments[0], g)
         part = self._parts[g]
-        D = np.zeros((len(theta), self.n_thresholds + len(self.pairs[0])))
+        D = np.zeros((len(theta), len(self.targets[g])))  # the group's statistics (more beside continuous items)
         D[part.touched] = self._transform(moments, *self._moment_derivatives(moments[0], part))
         return D
 
