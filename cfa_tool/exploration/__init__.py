@@ -6,32 +6,16 @@ Pure functions on a :class:`CorrelationInput` (built from ``SampleMoments`` or
 or formats reports.
 """
 
-from importlib import import_module
-
-# each public name and the module that defines it, imported when the name is first used (a fit's report needs
-# only the vocabulary in choices, and importing every module here would add to the start of every command)
-_HOMES = {
-    **dict.fromkeys(("Exploration", "ExploreSettings", "explore_correlations"), "analysis"),
-    **dict.fromkeys(("CorrelationKind", "CountNote", "CountRule", "ErrorsUnavailable", "ExtractionMethod", "FitStatistic",
-                     "Placement", "RotationMethod"), "choices"),
-    **dict.fromkeys(("CorrelationInput", "from_correlations", "from_covariance", "from_ordinal_moments",
-                     "from_sample_moments"), "correlations"),
-    **dict.fromkeys(("DraftModel", "draft_model"), "draft"),
-    **dict.fromkeys(("FactorSolution", "SolutionFit", "extract"), "extraction"),
-    **dict.fromkeys(("FactorCount", "average_partial", "count_factors", "parallel_analysis"), "factor_count"),
-    **dict.fromkeys(("LoadingErrors", "loading_errors"), "loading_errors"),
-    **dict.fromkeys(("RotatedSolution", "RotationSpec", "rotate"), "rotation"),
-}
-
-
-def __getattr__(name: str):
-    home = _HOMES.get(name)
-    if home is None:
-        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-    value = getattr(import_module(f"{__name__}.{home}"), name)
-    globals()[name] = value
-    return value
-
+from cfa_tool.exploration.analysis import Exploration, ExploreSettings, explore_correlations
+from cfa_tool.exploration.choices import (CorrelationKind, CountNote, CountRule, ErrorsUnavailable, ExtractionMethod,
+                                          FitStatistic, Placement, RotationMethod)
+from cfa_tool.exploration.correlations import (CorrelationInput, from_correlations, from_covariance, from_ordinal_moments,
+                                               from_sample_moments)
+from cfa_tool.exploration.draft import DraftModel, draft_model
+from cfa_tool.exploration.extraction import FactorSolution, SolutionFit, extract
+from cfa_tool.exploration.factor_count import FactorCount, average_partial, count_factors, parallel_analysis
+from cfa_tool.exploration.loading_errors import LoadingErrors, loading_errors
+from cfa_tool.exploration.rotation import RotatedSolution, RotationSpec, rotate
 
 __all__ = [
     "CorrelationInput", "CorrelationKind", "CountNote", "CountRule", "DraftModel", "ErrorsUnavailable", "Exploration",
