@@ -14,10 +14,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.linalg import solve_triangular
 
 from cfa_tool.assessment.normality import whitened_rows
 from cfa_tool.numerics import distributions as dist
+from cfa_tool.numerics.linalg import spd_inverse
 
 
 @dataclass(frozen=True)
@@ -43,23 +43,25 @@ def normalized_residuals(S: np.ndarray, sigma: np.ndarray, n_obs: int) -> np.nda
 
 
 def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarray | None, top: int = 10,
-                     whitened: tuple[np.ndarray, float] | None = None) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
+                     whitened: tuple[np.ndarray, float] | None = None,
+                     inverse: tuple[np.ndarray, float] | None = None) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
     """(rows with the largest Mahalanobis distances, rows with the largest shares of chi-square);
-    ``whitened`` is :func:`~cfa_tool.assessment.normality.whitened_rows` of the rows when the caller has it."""
+    ``whitened`` is :func:`~cfa_tool.assessment.normality.whitened_rows` of the rows and ``inverse``
+    (Sigma^-1, log|Sigma|) when the caller has them (the estimation's factorisation of Sigma)."""
     n, p = rows.shape
-    dev = rows - rows.mean(axis=0)
     Y, log_det_S = whitened_rows(rows) if whitened is None else whitened
     d_sample = np.einsum("ij,ij->i", Y, Y)
-    L = np.linalg.cholesky(sigma)
-    Z = solve_triangular(L, dev.T, lower=True, check_finite=False)
-    d_model = np.einsum("ij,ij->j", Z, Z)
-    share = 2.0 * float(np.log(L.diagonal()).sum()) - log_det_S + d_model - d_sample
-    numbers = np.arange(1, n + 1) if row_numbers is None else row_numbers
-
-    def pick(order) -> list[CaseDiagnostic]:
-        chosen = order[:top]
-        p_values = dist.chi2_sf(d_sample[chosen], p)  # only for the rows shown
-        return [CaseDiagnostic(int(numbers[i]), float(d_sample[i]), float(pv), float(share[i]))
-                for i, pv in zip(chosen, p_values)]
-
-    return pick(np.argsort(-d_sample, kind="stable")), pick(np.argsort(-share, kind="stable"))
+    if inverse is None:
+        inverse = spd_inverse(sigma)
+        if inverse is None:
+            raise np.linalg.LinAlgError("the implied covariance matrix is not positive definite")
+    sigma_inv, log_det_sigma = inverse
+    dev = rows - rows.mean(axis=0)
+    d_model = np.einsum("ij,ij->i", dev @ sigma_inv, dev)
+    share = log_det_sigma - log_det_S + d_model - d_sample
+    chosen = np.concatenate([np.argsort(-d_sample, kind="stable")[:top], np.argsort(-share, kind="stable")[:top]])
+    numbers = (chosen + 1 if row_numbers is None else row_numbers[chosen]).tolist()
+    found = [CaseDiagnostic(*values) for values in zip(numbers, d_sample[chosen].tolist(),
+                                                       dist.chi2_sf(d_sample[chosen], p).tolist(), share[chosen].tolist())]
+    shown = len(found) // 2  # the rows shown: p-values only for them
+    return found[:shown], found[shown:]

@@ -22,7 +22,7 @@ Brosseau-Liard & Savalei 2014) and use the same formulas (:func:`cfi_from`, :fun
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -50,7 +50,7 @@ class FitIndices:
     sabic: float | None = None
 
     def to_dict(self) -> dict:
-        d = asdict(self)
+        d = dict(vars(self))  # every field is a number or a pair of numbers
         d["rmsea_ci90"] = list(self.rmsea_ci90)
         order = ("chi_square", "df", "p_value", "cfi", "tli", "rmsea", "rmsea_ci90", "rmsea_p_close", "srmr",
                  "log_likelihood", "aic", "bic", "sabic", "baseline_chi_square", "baseline_df", "n_free_parameters")

@@ -165,7 +165,10 @@ def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candi
 def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: Objective,
                          exogenous: tuple[str, ...]) -> list[ModificationIndex]:
     table = model.table
-    return score_tests(model, theta, likelihood, [candidate_entries(table, exogenous, g) for g in range(table.n_groups)])
+    key = ("modification candidates", exogenous)  # fixed by the model: built at its first fit, kept for its refits
+    if key not in model.derived:
+        model.derived[key] = [candidate_entries(table, exogenous, g) for g in range(table.n_groups)]
+    return score_tests(model, theta, likelihood, model.derived[key])
 
 
 def equality_score_tests(model: StructuredModel, theta: np.ndarray, likelihood: Objective,

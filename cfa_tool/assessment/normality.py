@@ -5,7 +5,8 @@ b2 = (1/N) sum_i (z_i' S^-1 z_i)^2, with (b2 - p(p+2)) / sqrt(8 p (p+2) / N) ~ N
 under multivariate normality (S with divisor N; Mardia 1970, 1974).
 
 The double sum never holds an N x N or N x p^2 array at once.  With whitened rows y_i it is either
-sum_abc T_abc^2 where T_abc = sum_i y_ia y_ib y_ic (N p^3 operations, for few items and many rows: N > p^2) or
+sum_abc T_abc^2 where T_abc = sum_i y_ia y_ib y_ic (N p^3 / 2 operations, as T is symmetric: its rows T_ab. for
+b >= a, one item a at a time; for few items and many rows: N > p^2) or
 the cubed Gram matrix Y Y' taken in blocks of rows, each pair of blocks once (N^2 p / 2 operations,
 for many items), whichever was timed faster for the shape.
 """
@@ -72,9 +73,9 @@ def _sum_of_cubed_products(Y: np.ndarray) -> float:
             G *= G * G
             total += 2.0 * float(G.sum()) - float(G[:, : stop - start].sum())
         return total
-    size = max(1, min(n, BLOCK // (p * p)))
-    third = np.zeros((p * p, p))
-    for start in range(0, n, size):  # T_abc accumulated over blocks of rows
-        block = Y[start:start + size]
-        third += (block[:, :, None] * block[:, None, :]).reshape(len(block), p * p).T @ block
-    return float(np.sum(third**2))
+    columns = np.ascontiguousarray(Y.T)
+    for a in range(p):  # T_ab. for b >= a (T is symmetric: the rows b > a stand for T_ba. as well)
+        T = (columns[a:] * columns[a]) @ Y
+        squares = np.einsum("ij,ij->i", T, T)
+        total += 2.0 * float(squares.sum()) - float(squares[0])
+    return total

@@ -103,29 +103,6 @@ def cronbach_alpha(S: np.ndarray, keys: np.ndarray | None = None) -> float:
     return float(n / (n - 1) * (1.0 - np.trace(S) / total))
 
 
-def item_keys(loadings: np.ndarray, items: tuple[str, ...], declared: dict[str, tuple[float, float]] | None
-              ) -> tuple[np.ndarray, np.ndarray]:
-    """(keys, items whose loading contradicts the declared keying) for one factor's items.
-
-    With a declaration its keys hold (-1 for a declared item); the factor's direction is then the
-    majority of the keyed loadings, and an item whose keyed loading points the other way contradicts
-    the declaration.  Without one, keys follow the majority sign of the loadings."""
-    signs = np.where(loadings < 0, -1.0, 1.0)
-    if declared is None:
-        return signs * _majority(signs, loadings), np.zeros(len(items), dtype=bool)
-    keys = np.array([-1.0 if x in declared else 1.0 for x in items])
-    keyed = keys * signs
-    direction = _majority(keyed, keys * loadings)
-    return keys, (keyed != direction) & (loadings != 0)
-
-
-def _majority(signs: np.ndarray, values: np.ndarray) -> float:
-    vote = signs.sum()
-    if vote == 0:
-        vote = values.sum()
-    return -1.0 if vote < 0 else 1.0
-
-
 def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[str, ...], S: np.ndarray | None,
                 means: np.ndarray | None = None, declared: dict[str, tuple[float, float]] | None = None,
                 n_obs: int | None = None, sum_scores: bool = True,
@@ -141,106 +118,123 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     ``not_traits``: method factors (wording, acquiescence), which get no coefficient, take no part in the
     Fornell-Larcker comparison and no HTMT pair (their loadings describe a way of answering, not a trait)."""
     p, m = mats.L.shape
-    G = mats.L @ mats.A
+    L, G = mats.L, mats.L @ mats.A
     phi = mats.latent_covariance()
     sigma = mats.implied_covariance()
     theta = mats.T
-    reach = np.abs(G) > 1e-12
-    direct = np.abs(mats.L) > 0
-    higher = [j for j in range(m) if np.abs(mats.B[:, j]).sum() > 0]
+    # every factor at once: columns of keys K (item i's key for factor j, 0 for items f does not reach) and of
+    # K restricted to each first-order factor's own items; the sums of the module docstring are then columns of
+    # K' X K and K' x for the matrices X and vectors x involved
+    member = (np.abs(G) > 1e-12) | (np.abs(L) > 0)
+    direct = np.abs(L) > 0
+    higher = np.abs(mats.B).sum(axis=0) > 0
+    signs = np.where(G < 0, -1.0, 1.0)
+    if declared is None:
+        keys = signs
+        vote, tie_break = (signs * member).sum(axis=0), (G * member).sum(axis=0)
+    else:
+        keys = np.repeat(np.array([-1.0 if x in declared else 1.0 for x in observed])[:, None], m, axis=1)
+        vote, tie_break = (keys * signs * member).sum(axis=0), (keys * G * member).sum(axis=0)
+    direction = np.where(np.where(vote == 0, tie_break, vote) < 0, -1.0, 1.0)  # each factor's majority
+    if declared is None:
+        K = signs * direction * member
+        against = np.zeros((p, m), dtype=bool)
+    else:
+        K = keys * member
+        # contradictions are reported once, for the factor the items load on directly
+        against = member & (keys * signs != direction) & (G != 0) & ~higher
+    totals = np.einsum("ij,ij->j", K, sigma @ K)
+    omega = np.einsum("ij,ij->j", K, G) ** 2 * np.diag(phi) / totals
+    omega_total = 1.0 - np.einsum("ij,ij->j", K, theta @ K) / totals
     sd_lat = np.sqrt(np.clip(np.diag(phi), 1e-300, None))
     sd_obs = np.sqrt(np.clip(np.diag(sigma), 1e-300, None))
     corr_lat = phi / np.outer(sd_lat, sd_lat)
+    Kd = K * direct  # keys of each first-order factor's own items
+    lam = L * sd_lat / sd_obs[:, None]  # standardized loadings (0 where an item does not load)
+    err = direct.T.astype(float) @ (np.diag(theta) / sd_obs**2)  # standardized residual variances, summed
+    keyed_sum = np.einsum("ij,ij->j", Kd, lam)
+    lam_squares = (lam**2).sum(axis=0)
+    with np.errstate(divide="ignore", invalid="ignore"):  # 0 / 0 for higher-order factors, which have neither
+        cr = keyed_sum**2 / (keyed_sum**2 + err)
+        ave = lam_squares / (lam_squares + err)
+    counts = direct.sum(axis=0)
+    if S is not None:
+        SK = S @ Kd
+        keyed_totals = np.einsum("ij,ij->j", Kd, SK)  # k'S k over each factor's own items
+        s_ii = np.diag(S)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            alpha = np.where(counts > 1, counts / np.maximum(counts - 1, 1) * (1.0 - direct.T @ s_ii / keyed_totals),
+                             np.nan)
+    first_order = [j for j in range(m) if member[:, j].any() and latent[j] not in not_traits and not higher[j]]
     keying = Keying.SIGNS if declared is None else Keying.DECLARED
-    out = []
-    ave_by_factor: dict[int, float] = {}
-    own_keys: dict[int, tuple[np.ndarray, np.ndarray]] = {}
+    results = []
     for j, name in enumerate(latent):
-        items = np.flatnonzero(reach[:, j] | direct[:, j])
+        items = np.flatnonzero(member[:, j])
         if len(items) == 0 or name in not_traits:
             continue
         names = tuple(observed[i] for i in items)
-        keys, against = item_keys(G[items, j], names, declared)
-        if j in higher:  # contradictions are reported once, for the factor the items load on directly
-            against = np.zeros(len(items), dtype=bool)
-        total = float(keys @ sigma[np.ix_(items, items)] @ keys)
-        own = float((keys @ G[items, j]) ** 2 * phi[j, j])
-        omega = own / total
-        omega_total = 1.0 - float(keys @ theta[np.ix_(items, items)] @ keys) / total
-        cr = ave = alpha = mean = sd = None
+        reversed_items = tuple(observed[i] for i in items if K[i, j] < 0)
+        against_items = tuple(observed[i] for i in items if against[i, j])
+        if higher[j]:
+            results.append(FactorReliability(name, names, "higher-order", float(omega[j]), float(omega_total[j]),
+                                             float(omega[j]), None, None, None, None, None, reversed_items, keying,
+                                             None, None, (), against_items))
+            continue
+        alpha_j = mean = sd = None
         item_total: tuple[float, ...] = ()
-        if j not in higher:
+        if S is not None:
             own_items = np.flatnonzero(direct[:, j])
-            own_k = keys[np.searchsorted(items, own_items)]
-            own_keys[j] = (own_items, own_k)
-            lam = mats.L[own_items, j] * sd_lat[j] / sd_obs[own_items]
-            err = np.diag(theta)[own_items] / sd_obs[own_items] ** 2
-            keyed_sum = float(own_k @ lam)
-            cr = float(keyed_sum**2 / (keyed_sum**2 + err.sum()))
-            ave = float((lam**2).sum() / ((lam**2).sum() + err.sum()))
-            ave_by_factor[j] = ave
-            if S is not None:
-                S_own = S[np.ix_(own_items, own_items)]
-                alpha = cronbach_alpha(S_own, own_k)
-                if sum_scores:
-                    sd, item_total = _sum_score_spread(S_own, own_k, n_obs)
-                if sum_scores and means is not None:
-                    mean = _sum_score_mean(means[own_items], own_k, [observed[i] for i in own_items], declared)
-        reversed_items = tuple(x for x, k in zip(names, keys) if k < 0)
-        out.append([j, name, names, "higher-order" if j in higher else "first-order", omega, omega_total,
-                    omega if j in higher else None, cr, ave, alpha, reversed_items, mean, sd, item_total,
-                    tuple(x for x, bad in zip(names, against) if bad)])
-    results = []
-    for j, name, items, level, omega, omega_total, omega_h, cr, ave, alpha, rev, mean, sd, item_total, against in out:
+            own_k = K[own_items, j]
+            alpha_j = float(alpha[j])
+            if sum_scores:
+                sd, item_total = _sum_score_spread(float(keyed_totals[j]), own_k, SK[own_items, j], s_ii[own_items],
+                                                   n_obs)
+            if sum_scores and means is not None:
+                mean = _sum_score_mean(means[own_items], own_k, [observed[i] for i in own_items], declared)
         largest = holds = None
-        others = [k for k in ave_by_factor if k != j]
-        if ave is not None and others:
-            largest = float(max(abs(corr_lat[j, k]) for k in others))
-            holds = bool(np.sqrt(ave) > largest)
-        results.append(FactorReliability(name, items, level, float(omega), float(omega_total), omega_h, cr, ave, alpha,
-                                         largest, holds, rev, keying, mean, sd, item_total, against))
+        others = [k for k in first_order if k != j]
+        if others:
+            largest = float(np.abs(corr_lat[j, others]).max())
+            holds = bool(np.sqrt(ave[j]) > largest)
+        results.append(FactorReliability(name, names, "first-order", float(omega[j]), float(omega_total[j]), None,
+                                         float(cr[j]), float(ave[j]), alpha_j, largest, holds, reversed_items, keying,
+                                         mean, sd, item_total, against_items))
     htmt = []
     if S is not None:
-        sd_items = np.sqrt(np.diag(S))
+        sd_items = np.sqrt(s_ii)
         R = S / np.outer(sd_items, sd_items)
-        first_order = list(ave_by_factor)
-        mono = {}  # mean keyed correlation among each factor's own items (each pair once: off-diagonal sum / count)
-        for f in first_order:
-            i, k = own_keys[f]
-            if len(i) >= 2:
-                R_ff = R[np.ix_(i, i)]
-                mono[f] = float(k @ R_ff @ k - np.trace(R_ff)) / (len(i) * (len(i) - 1))
+        keyed_r = Kd.T @ R @ Kd  # k_a' R k_b for every pair of factors
+        with np.errstate(divide="ignore", invalid="ignore"):  # mean keyed correlation within each factor (each pair once)
+            mono = (np.diag(keyed_r) - direct.T @ np.diag(R)) / (counts * (counts - 1))
         for a_pos, a in enumerate(first_order):
             for b in first_order[a_pos + 1:]:
-                (ia, ka), (ib, kb) = own_keys[a], own_keys[b]
-                short = [latent[f] for f, i in ((a, ia), (b, ib)) if len(i) < 2]
+                short = [latent[f] for f in (a, b) if counts[f] < 2]
                 if short:
                     htmt.append(Htmt(latent[a], latent[b], None, f"{' and '.join(short)} "
                                      f"{'has' if len(short) == 1 else 'have'} fewer than two items of its own, so there "
                                      f"is no correlation within it to compare with"))
                     continue
-                hetero = float(ka @ R[np.ix_(ia, ib)] @ kb) / (len(ia) * len(ib))
-                mono_a, mono_b = mono[a], mono[b]
+                hetero = float(keyed_r[a, b]) / (counts[a] * counts[b])
+                mono_a, mono_b = float(mono[a]), float(mono[b])
                 if mono_a > 0 and mono_b > 0:
                     htmt.append(Htmt(latent[a], latent[b], float(abs(hetero) / np.sqrt(mono_a * mono_b))))
                 else:
-                    weak = [latent[f] for f, mono in ((a, mono_a), (b, mono_b)) if mono <= 0]
+                    weak = [latent[f] for f, value in ((a, mono_a), (b, mono_b)) if value <= 0]
                     htmt.append(Htmt(latent[a], latent[b], None, f"the keyed items of {' and '.join(weak)} do not "
                                      f"correlate positively on average, so the ratio is not defined"))
     return results, htmt
 
 
-def _sum_score_spread(S: np.ndarray, keys: np.ndarray, n_obs: int | None) -> tuple[float, tuple[float, ...]]:
-    """(standard deviation of the keyed sum, corrected item-total correlations) from covariances S."""
-    Sk = S @ keys
-    total = float(keys @ Sk)
+def _sum_score_spread(total: float, keys: np.ndarray, Sk: np.ndarray, s_ii: np.ndarray,
+                      n_obs: int | None) -> tuple[float, tuple[float, ...]]:
+    """(standard deviation of the keyed sum, corrected item-total correlations) of one factor's own items from
+    their keyed total variance k'S k, keys k, S k and variances s_ii."""
     sd = float(np.sqrt(total * (n_obs / (n_obs - 1) if n_obs and n_obs > 1 else 1.0)))
-    if len(S) < 2:
+    if len(keys) < 2:
         return sd, ()
-    s_ii = np.diag(S)
     with_rest = keys * Sk - s_ii  # cov(k_i x_i, T - k_i x_i) with T the keyed sum
     rest = total - 2.0 * keys * Sk + s_ii  # var(T - k_i x_i)
-    return sd, tuple(float(v) for v in with_rest / np.sqrt(np.maximum(s_ii * rest, 1e-300)))
+    return sd, tuple((with_rest / np.sqrt(np.maximum(s_ii * rest, 1e-300))).tolist())
 
 
 def _sum_score_mean(means: np.ndarray, keys: np.ndarray, names: list[str],

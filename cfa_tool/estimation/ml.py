@@ -42,9 +42,10 @@ class NormalParts:
     :mod:`cfa_tool.model.rank_two` differentiates it along any direction."""
 
     def __init__(self, sigma_inv: np.ndarray, M: np.ndarray, mean_gradient: np.ndarray | None,
-                 value: float):
+                 value: float, log_det: float):
         self.value = value  # this group's discrepancy
         self.sigma_inv = sigma_inv
+        self.log_det = log_det  # log|Sigma|
         self.M = M  # Sigma^-1 (Sigma - S - d d') Sigma^-1
         self.mean_gradient = mean_gradient  # -2 Sigma^-1 d, or None without a mean structure
 
@@ -116,7 +117,13 @@ class NormalLikelihood:
             target -= np.outer(dev, dev)
             mean_gradient = -2.0 * sigma_inv @ dev
             value += float(dev @ sigma_inv @ dev)
-        return [mats, NormalParts(sigma_inv, sigma_inv @ target @ sigma_inv, mean_gradient, value), None]
+        return [mats, NormalParts(sigma_inv, sigma_inv @ target @ sigma_inv, mean_gradient, value, log_det), None]
+
+    def sigma_inverse(self, theta: np.ndarray, g: int) -> tuple[np.ndarray, float] | None:
+        """(Sigma^-1, log|Sigma|) of group g at theta, from the factorisation the discrepancy used (None when
+        Sigma is not positive definite)."""
+        state = self._group_state(theta, g)
+        return None if state is None else (state[1].sigma_inv, state[1].log_det)
 
     def _rank_two(self, theta: np.ndarray, g: int, with_information: bool = True):
         """(mats, parts, gradient and information over the group's active entries, K, Q) or None."""

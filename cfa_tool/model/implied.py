@@ -76,7 +76,8 @@ class ModelMatrices:
 class StructuredModel:
     """Maps theta to each group's matrices, implied moments and their derivatives.
 
-    Holds only precomputed index arrays; every method is a pure function of theta.
+    Holds only precomputed index arrays (and, in ``derived``, what other modules compute from the structure
+    alone); every method is a pure function of theta.
     """
 
     def __init__(self, table: ParameterTable):
@@ -84,6 +85,7 @@ class StructuredModel:
         self.p, self.m = table.p, table.m
         self.n_groups = table.n_groups
         self.mean_structure = table.mean_structure
+        self.derived: dict = {}  # what other modules derive from the structure alone, kept for refits of the model
         codes, rows, cols = table.entry_arrays()
         groups = table.group_array()
         J, offset = table.mapping()

@@ -23,8 +23,17 @@ def clean(value):
         if all(type(v) is float for v in value) and math.isfinite(sum(value)):  # a NaN or infinity makes the sum one
             return list(value)
         return [clean(v) for v in value]
-    if kind is dict:
-        return {k: clean(v) for k, v in value.items()}
+    if kind is dict:  # plain values cleaned in place of a call per value (to_dict builds hundreds of these)
+        out = {}
+        for k, v in value.items():
+            kind = type(v)
+            if kind is float:
+                out[k] = v if v - v == 0.0 else None  # not 0 (NaN) for NaN and infinities
+            elif kind in _PLAIN:
+                out[k] = v
+            else:
+                out[k] = clean(v)
+        return out
     if isinstance(value, (float, np.floating)):
         value = float(value)
         return value if math.isfinite(value) else None

@@ -291,7 +291,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 latent_covariance=mats[g].latent_covariance(),
                 normality=mardia(gm.rows, whitened) if whitened is not None else None,
                 **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics,
-                                     spec.reverse_keyed or None, spec.method_factors | spec.exploratory_factors, whitened),
+                                     spec.reverse_keyed or None, spec.method_factors | spec.exploratory_factors, whitened,
+                                     likelihood.sigma_inverse(theta, g) if hasattr(likelihood, "sigma_inverse") else None),
             )
         )
     for g, result in enumerate(group_results):
@@ -349,9 +350,11 @@ def estimate_rows(table: ParameterTable, values: np.ndarray, inference, standard
 
 def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool,
                        declared: dict[str, tuple[float, float]] | None, not_traits: frozenset[str] = frozenset(),
-                       whitened: tuple[np.ndarray, float] | None = None) -> dict:
+                       whitened: tuple[np.ndarray, float] | None = None,
+                       inverse: tuple[np.ndarray, float] | None = None) -> dict:
     """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often);
-    ``declared``: the reverse-keyed items of a 'reversed' statement, if any."""
+    ``declared``: the reverse-keyed items of a 'reversed' statement, if any; ``whitened`` and ``inverse``: the
+    whitened rows and (Sigma^-1, log|Sigma|), shared with Mardia's tests and the estimation."""
     if not wanted:
         return {}
     factors, htmt = reliability(mats, table.observed, table.latent, gm.covariance, gm.mean, declared, gm.n_obs,
@@ -359,7 +362,7 @@ def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: n
     out = {"reliability": tuple(factors), "htmt": tuple(htmt),
            "normalized_residuals": normalized_residuals(gm.covariance, sigma, gm.n_obs)}
     if gm.rows is not None and not np.isnan(gm.rows).any():
-        unusual, influential = case_diagnostics(gm.rows, sigma, m.row_numbers, whitened=whitened)
+        unusual, influential = case_diagnostics(gm.rows, sigma, m.row_numbers, whitened=whitened, inverse=inverse)
         out.update(unusual_cases=tuple(unusual), influential_cases=tuple(influential))
     return out
 

@@ -1,0 +1,119 @@
+"""The first fit of a fresh process: the command line's cold start, and the Python API's import plus first fit
+against semopy's, each in new processes taking turns (so that a change in the machine's load affects them alike).
+
+    python bench/cold_start.py [--runs 9] [--imports]   # --imports: the slowest imports of one command-line run
+
+Case 1 (Holzinger-Swineford, 9 items, N = 301), from a CSV file:
+
+* command line: ``cfa-tool fit model.cfa --data data.csv`` (the terminal report);
+* Python API: ``import cfa_tool, pandas``; read the CSV; ``cfa_tool.fit(text, data).to_dict()`` (the default call);
+* semopy: ``import semopy, pandas``; read the CSV; fit, inspect and calc_stats.
+
+Each child runs with its compiled bytecode cached (in a temporary folder, as an installed package has it: without
+it every start compiles the tool's modules again) and one BLAS thread.  Reports the median wall time and the median
+processor time (user + system, of the child alone) over ``--runs`` runs, and the load average before and after:
+on a shared machine the processor time is the steadier measure.  Writes bench/results/cold_start.json.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import resource
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+MODEL = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+REFERENCE = "visual =~ x1 + x2 + x3\ntextual =~ x4 + x5 + x6\nspeed =~ x7 + x8 + x9"
+
+API = """
+import sys
+import pandas as pd
+import cfa_tool
+cfa_tool.fit(open(sys.argv[1]).read(), pd.read_csv(sys.argv[2])).to_dict()
+"""
+
+SEMOPY = """
+import sys, warnings
+warnings.filterwarnings("ignore")
+import pandas as pd
+import semopy
+model = semopy.Model(sys.argv[1])
+model.fit(pd.read_csv(sys.argv[2]))
+model.inspect()
+semopy.calc_stats(model)
+"""
+
+
+def run_child(command: list[str], env: dict) -> tuple[float, float]:
+    """(wall seconds, processor seconds of the child) of one run; a failing child stops the benchmark."""
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
+    start = time.perf_counter()
+    done = subprocess.run(command, env=env, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
+    wall = time.perf_counter() - start
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    if done.returncode != 0:
+        raise SystemExit(f"{' '.join(command[:3])}... failed:\n{done.stderr[-2000:]}")
+    return wall, (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--runs", type=int, default=9)
+    parser.add_argument("--imports", action="store_true", help="also list the slowest imports of one command-line run")
+    args = parser.parse_args()
+    from semopy.examples import holzinger39
+
+    with tempfile.TemporaryDirectory() as tmp:
+        tmp = Path(tmp)
+        data, model, api, ref = tmp / "data.csv", tmp / "model.cfa", tmp / "api.py", tmp / "semopy_fit.py"
+        holzinger39.get_data()[[f"x{i}" for i in range(1, 10)]].to_csv(data, index=False)
+        model.write_text(MODEL)
+        api.write_text(API)
+        ref.write_text(SEMOPY)
+        env = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
+        env.update(PYTHONPATH=str(ROOT), PYTHONPYCACHEPREFIX=str(tmp / "bytecode"), OPENBLAS_NUM_THREADS="1")
+        commands = {
+            "command line: cfa-tool fit": [sys.executable, "-m", "cfa_tool", "fit", str(model), "--data", str(data)],
+            "Python API: import + first default fit": [sys.executable, str(api), str(model), str(data)],
+            "semopy: import + first fit": [sys.executable, str(ref), REFERENCE, str(data)],
+        }
+        for command in commands.values():  # bytecode compiled and cached, files in the system's cache
+            run_child(command, env)
+        load_before = os.getloadavg()
+        times = {name: [] for name in commands}
+        for _ in range(args.runs):
+            for name, command in commands.items():
+                times[name].append(run_child(command, env))
+        load_after = os.getloadavg()
+        rows = [{"case": name, "wall_median_s": statistics.median(w for w, _ in runs),
+                 "cpu_median_s": statistics.median(c for _, c in runs), "wall_min_s": min(w for w, _ in runs),
+                 "cpu_min_s": min(c for _, c in runs)} for name, runs in times.items()]
+        api_row, ref_row = rows[1], rows[2]
+        print(f"load average {load_before[0]:.1f} before, {load_after[0]:.1f} after; {args.runs} runs each, taking turns")
+        for row in rows:
+            print(f"{row['case']:42s} wall {row['wall_median_s']:.3f} s (min {row['wall_min_s']:.3f}), "
+                  f"processor {row['cpu_median_s']:.3f} s (min {row['cpu_min_s']:.3f})")
+        print(f"semopy / Python API, processor time: {ref_row['cpu_median_s'] / api_row['cpu_median_s']:.2f}x")
+        if args.imports:
+            found = subprocess.run([sys.executable, "-X", "importtime", *commands["command line: cfa-tool fit"][1:]],
+                                   env=env, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True).stderr
+            top = [line.split("|") for line in found.splitlines() if line.startswith("import time:") and "|" in line]
+            top = sorted(((int(c), n.rstrip()) for _, c, n in (t for t in top if t[1].strip().isdigit())), reverse=True)
+            print("slowest imports (cumulative microseconds):")
+            for micro, name in top[:25]:
+                print(f"  {micro:9d} {name}")
+        out = ROOT / "bench" / "results"
+        out.mkdir(exist_ok=True)
+        (out / "cold_start.json").write_text(json.dumps({"load_average": [load_before, load_after], "runs": args.runs,
+                                                         "rows": rows}, indent=2))
+
+
+if __name__ == "__main__":
+    main()
