@@ -52,6 +52,7 @@ def _rule(cell, edge: str, size: int = 8) -> None:
 # that is too narrow, in parts of whole columns with the label column again (as the terminal does).
 MINUS = re.compile(r"(?<![\w.\u2212])-(?=[\d.])")  # a hyphen before a number that is not inside a word
 INTERVAL = re.compile(r"\[[^\[\]]*\]")
+RELATION = re.compile(r"(?<=\S) ([=<>\u2264\u2265]) (?=[\d.\u2212-])")  # 'p = .186', 'N = 900': kept on one line
 NO_BREAK_SPACE = "\u00a0"
 BODY_SIZE = 10.0  # points: table type
 WIDE_SIZE = 8.0  # points: table type of a wide table, on a landscape page
@@ -61,9 +62,10 @@ WIDE_PADDING = 2 * 2.0  # points: the narrower cell margins of a wide table
 
 
 def typeset(text: str, numeric: bool = False) -> str:
-    """``text`` with its minus signs as U+2212 and the spaces of its intervals (all its spaces, for a numeric
-    cell) non-breaking, so that no line break splits a number or an interval."""
-    text = MINUS.sub("\u2212", text)
+    """``text`` with its minus signs as U+2212 and the spaces of its intervals, of a relation to a number
+    ('p = .186') and, in a numeric cell, all its spaces non-breaking, so that no line break splits a number, an
+    interval or a statistic from its value."""
+    text = RELATION.sub(f"{NO_BREAK_SPACE}\\1{NO_BREAK_SPACE}", MINUS.sub("\u2212", text))
     if numeric:
         return text.replace(" ", NO_BREAK_SPACE)
     return INTERVAL.sub(lambda m: m.group(0).replace(" ", NO_BREAK_SPACE), text)

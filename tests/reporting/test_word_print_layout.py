@@ -67,6 +67,8 @@ def test_typeset_keeps_numbers_and_intervals_whole():
     # hyphens inside words and the words between intervals stay as they are
     assert typeset("Item-rest r and full-information ML, x1-x3") == "Item-rest r and full-information ML, x1-x3"
     assert typeset("from [.04, .09] to 0.5") == "from [.04,\u00a0.09] to 0.5"
+    assert typeset("gave p = .186, N = 900 and r < -.30") == "gave p\u00a0=\u00a0.186, N\u00a0=\u00a0900 and r\u00a0<\u00a0\u2212.30"
+    assert typeset("a = b") == "a = b"  # a relation between words may break as words do
 
 
 def test_numeric_cells_do_not_wrap_and_hold_no_breakable_minus_or_space(word, rider):
