@@ -6,15 +6,18 @@ the solution come first, as in every view.  The tables are the report's own (one
 from __future__ import annotations
 
 import io
+import re
 
 from docx import Document
+from docx.enum.section import WD_ORIENT, WD_SECTION
 from docx.enum.table import WD_TABLE_ALIGNMENT
 from docx.enum.text import WD_ALIGN_PARAGRAPH
 from docx.oxml import OxmlElement
 from docx.oxml.ns import qn
-from docx.shared import Inches, Pt, RGBColor
+from docx.shared import Emu, Inches, Pt, RGBColor
 
 from cfa_tool.reporting import tables as T
+from cfa_tool.reporting.column_parts import column_parts
 from cfa_tool.reporting.diagram import legend_text, path_diagram
 from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.picture import DEFAULT_DPI, page_fit, png_converter, svg_to_png
@@ -42,45 +45,186 @@ def _rule(cell, edge: str, size: int = 8) -> None:
     borders.append(line)
 
 
-def _caption(document, label: str, title: str) -> None:
+# Typesetting for print (what a journal's production editor expects): a number or an interval is never broken
+# across lines.  A minus sign is the true minus (U+2212, after which no line breaks, where a hyphen-minus lets
+# '-' end a line); the spaces inside an interval and inside a numeric cell are non-breaking; numeric cells do
+# not wrap (w:noWrap).  Tables wider than the text are set in smaller type on a landscape page, and when even
+# that is too narrow, in parts of whole columns with the label column again (as the terminal does).
+MINUS = re.compile(r"(?<![\w.\u2212])-(?=[\d.])")  # a hyphen before a number that is not inside a word
+INTERVAL = re.compile(r"\[[^\[\]]*\]")
+RELATION = re.compile(r"(?<=\S) ([=<>\u2264\u2265]) (?=[\d.\u2212-])")  # 'p = .186', 'N = 900': kept on one line
+NO_BREAK_SPACE = "\u00a0"
+BODY_SIZE = 10.0  # points: table type
+WIDE_SIZE = 8.0  # points: table type of a wide table, on a landscape page
+WIDE_COLUMNS = 8  # a table with more numeric columns than this is wide (correlation and residual matrices)
+CELL_PADDING = 2 * 5.4  # points: the left and right cell margins Word's default table style gives (0.075 inch each)
+WIDE_PADDING = 2 * 2.0  # points: the narrower cell margins of a wide table
+
+
+def typeset(text: str, numeric: bool = False) -> str:
+    """``text`` with its minus signs as U+2212 and the spaces of its intervals, of a relation to a number
+    ('p = .186') and, in a numeric cell, all its spaces non-breaking, so that no line break splits a number, an
+    interval or a statistic from its value."""
+    text = RELATION.sub(f"{NO_BREAK_SPACE}\\1{NO_BREAK_SPACE}", MINUS.sub("\u2212", text))
+    if numeric:
+        return text.replace(" ", NO_BREAK_SPACE)
+    return INTERVAL.sub(lambda m: m.group(0).replace(" ", NO_BREAK_SPACE), text)
+
+
+# Advance widths of Times' characters in thousandths of the type size (Adobe's Times-Roman font metrics, recalled
+# from memory; Times New Roman's are nearly the same); any other character counts as 600.
+_TIMES = {**dict.fromkeys("0123456789abdghknopquvxy_#$", 500), **dict.fromkeys(" .,:;!ijlt'|/", 278),
+          **dict.fromkeys("ceaz?", 444), **dict.fromkeys("frI-[]()", 333), "s": 389, "m": 778, "w": 722,
+          **dict.fromkeys("ADGHKNOQUVXY", 722), **dict.fromkeys("BRC", 667), **dict.fromkeys("ELTZ", 611),
+          **dict.fromkeys("FPS", 556), "J": 389, "M": 889, "W": 944, "%": 833,
+          **dict.fromkeys("<>=+\u2212\u00b1", 564), "\u00a0": 250, "\u00b2": 300}
+WIDTH_MARGIN = 1.08  # estimated widths made a little larger: a cell a little too wide costs nothing
+
+
+def _text_width(text: str, size: float) -> float:
+    """The width of ``text`` in points at ``size`` points, from Times' character widths."""
+    return WIDTH_MARGIN * size * sum(_TIMES.get(c, 600) for c in text) / 1000
+
+
+def _column_widths(table: ReportTable, size: float) -> tuple[list[float], list[float]]:
+    """For each column the width it needs on one line (its longest cell) and the least it needs (numeric
+    cells whole; text and the header broken only between words), in points without the cell margins."""
+    wanted, least = [], []
+    for j, header in enumerate(table.columns):
+        cells = [row[j] for row in table.rows]
+        words = [w for text in [header, *([] if table.align[j] == "r" else cells)] for w in text.split()]
+        whole = cells if table.align[j] == "r" else []
+        least.append(max([_text_width(t, size) for t in [*words, *whole]] or [0.0]))
+        wanted.append(max([_text_width(t, size) for t in [header, *cells]] or [0.0]))
+    return wanted, least
+
+
+def _fitted(wanted: list[float], least: list[float], room: float) -> list[float]:
+    """Column widths that fill no more than ``room``: what each column wants if all fit (widened in proportion,
+    by at most a half, to give the table air), else the least each needs and the rest of the room shared in
+    proportion to what the columns that can wrap would still like."""
+    if sum(wanted) <= room:
+        stretch = min(room / sum(wanted), 1.5) if sum(wanted) > 0 else 1.0
+        return [w * stretch for w in wanted]
+    spare, extra = room - sum(least), [w - m for w, m in zip(wanted, least)]
+    share = spare / sum(extra) if sum(extra) > 0 and spare > 0 else 0.0
+    return [m + e * share for m, e in zip(least, extra)]
+
+
+def _room(document) -> float:
+    """The text width of the current section in points."""
+    section = document.sections[-1]
+    return Emu(section.page_width - section.left_margin - section.right_margin).pt
+
+
+def _set_orientation(document, landscape: bool) -> None:
+    """A new section (on a new page) when the orientation changes: a landscape page for a wide table."""
+    current = document.sections[-1]
+    if (current.orientation == WD_ORIENT.LANDSCAPE) == landscape:
+        return
+    section = document.add_section(WD_SECTION.NEW_PAGE)
+    width, height = section.page_width, section.page_height
+    section.orientation = WD_ORIENT.LANDSCAPE if landscape else WD_ORIENT.PORTRAIT
+    section.page_width, section.page_height = max(width, height) if landscape else min(width, height), \
+        min(width, height) if landscape else max(width, height)
+
+
+def _property(parent, tag: str, **values: str):
+    """An OOXML property element ``tag`` under ``parent`` (made when missing) with the ``values`` set."""
+    element = parent.find(qn(tag))
+    if element is None:
+        element = OxmlElement(tag)
+        parent.append(element)
+    for name, value in values.items():
+        element.set(qn(f"w:{name}"), value)
+    return element
+
+
+def _caption(document, label: str, title: str, keep: bool = True) -> None:
     number = document.add_paragraph()
     number.add_run(label).bold = True
     number.paragraph_format.space_after = Pt(0)
     name = document.add_paragraph()
     name.add_run(title).italic = True
+    # the caption stays on the page of what it names
+    number.paragraph_format.keep_with_next = True
+    name.paragraph_format.keep_with_next = keep
 
 
 def _note(document, text: str) -> None:
     paragraph = document.add_paragraph()
     paragraph.add_run("Note. ").italic = True
-    paragraph.add_run(text)
+    paragraph.add_run(typeset(text))
     paragraph.paragraph_format.space_after = Pt(12)
 
 
-def _add_table(document, table: ReportTable, number: int) -> None:
-    _caption(document, f"Table {number}", table.title)
-    grid = document.add_table(rows=len(table.rows) + 1, cols=len(table.columns))
-    grid.alignment = WD_TABLE_ALIGNMENT.LEFT
+def _grid(document, table: ReportTable, columns: list[int], widths: list[float], size: float, padding: float) -> None:
+    """One table of the report's rows in the ``columns`` given, with fixed column widths (points, cell margins
+    included): APA rules, numeric cells never wrapped, the header row repeated on every page, and every row kept
+    with the next so that a short table is not split from its caption or its note."""
     rows = [table.columns] + list(table.rows)
+    grid = document.add_table(rows=len(rows), cols=len(columns))
+    grid.alignment = WD_TABLE_ALIGNMENT.LEFT
+    grid.autofit = False
+    properties = grid._tbl.tblPr
+    _property(properties, "w:tblW", w=str(round(20 * sum(widths))), type="dxa")
+    _property(properties, "w:tblLayout", type="fixed")
+    margins = _property(properties, "w:tblCellMar")
+    for edge in ("left", "right"):
+        _property(margins, f"w:{edge}", w=str(round(10 * padding)), type="dxa")  # half the padding each side
+    for k, gridcol in enumerate(grid._tbl.tblGrid.findall(qn("w:gridCol"))):
+        gridcol.set(qn("w:w"), str(round(20 * widths[k])))
     faint = set(table.faint)
     for r, values in enumerate(rows):
-        for c, value in enumerate(values):
-            cell = grid.cell(r, c)
+        row = grid.rows[r]
+        row_properties = row._tr.get_or_add_trPr()
+        _property(row_properties, "w:cantSplit")
+        if r == 0:
+            _property(row_properties, "w:tblHeader")
+        for k, c in enumerate(columns):
+            cell = grid.cell(r, k)
+            cell.width = Pt(widths[k])
+            numeric = table.align[c] == "r"
+            if numeric and r > 0:
+                _property(cell._tc.get_or_add_tcPr(), "w:noWrap")
             paragraph = cell.paragraphs[0]
-            run = paragraph.add_run(str(value))
-            run.font.size = Pt(10)
+            paragraph.paragraph_format.space_after = Pt(0)
+            paragraph.paragraph_format.keep_with_next = True
+            run = paragraph.add_run(typeset(str(values[c]), numeric and r > 0))
+            run.font.size = Pt(size)
             if r > 0 and (r - 1, c) in faint:  # small loadings: grey, as the note says
                 run.font.color.rgb = FAINT_GREY
             if r > 0 and (r - 1) in table.flagged:
                 run.bold = True
                 run.font.color.rgb = PROBLEM_RED
-            if table.align[c] == "r":
+            if numeric:
                 paragraph.alignment = WD_ALIGN_PARAGRAPH.RIGHT
             if r == 0:
                 _rule(cell, "top")
                 _rule(cell, "bottom")
             if r == len(rows) - 1:
                 _rule(cell, "bottom")
+
+
+def wide(table: ReportTable) -> bool:
+    """A table with more numeric columns than fit the text width at the body type (correlation and residual
+    matrices): set on a landscape page in smaller type."""
+    return sum(a == "r" for a in table.align) > WIDE_COLUMNS
+
+
+def _add_table(document, table: ReportTable, number: int) -> None:
+    landscape = wide(table)
+    _set_orientation(document, landscape)
+    size, padding = (WIDE_SIZE, WIDE_PADDING) if landscape else (BODY_SIZE, CELL_PADDING)
+    wanted, least = _column_widths(table, size)
+    room = _room(document)
+    parts = column_parts([w + padding for w in least], room)
+    for k, columns in enumerate(parts):
+        _caption(document, f"Table {number}" + (" (continued)" if k else ""), table.title)
+        widths = _fitted([wanted[j] + padding for j in columns], [least[j] + padding for j in columns], room)
+        _grid(document, table, columns, widths, size, padding)
+        if k < len(parts) - 1:
+            document.add_paragraph()
     if table.note:
         _note(document, table.note)
     else:
@@ -118,9 +262,10 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
         document.add_paragraph(line)
     if report.paragraph:
         document.add_heading("Method and results", level=2)
-        document.add_paragraph(report.paragraph)
+        document.add_paragraph(typeset(report.paragraph))
     for number, table in enumerate(report.tables, start=1):
         _add_table(document, table, number)
+    _set_orientation(document, landscape=False)
     if report.figures:
         document.add_heading("Figures", level=2)
         if png_converter() is None:
@@ -150,11 +295,12 @@ def docx_report(result, dpi: int = DEFAULT_DPI) -> bytes:
     document.add_paragraph(f"Data: {d.source}; {T.rows_phrase(d)}. "
                             f"{T.status_line(result)}.")
     document.add_heading("Method and results", level=2)
-    document.add_paragraph(methods_paragraph(result))
+    document.add_paragraph(typeset(methods_paragraph(result)))
     number = 0
     for table in all_tables(result):
         number += 1
         _add_table(document, table, number)
+    _set_orientation(document, landscape=False)
     document.add_heading("Path diagram", level=2)
     if png_converter() is None:
         document.add_paragraph(NO_PICTURE)

@@ -10,6 +10,7 @@ import numpy as np
 from cfa_tool.assessment.reliability import Keying
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, unit
+from cfa_tool.reporting.remedies import Remedy
 
 GUIDE_NOTE = (
     "Guide values are common practice (Hu & Bentler 1999), not laws: they were derived for particular models and "
@@ -691,14 +692,20 @@ def correlation_table(result, group: int = 0) -> ReportTable | None:
     pairs = g.data.pair_range
     rows_used = (f"N = {pairs[0]} to {pairs[1]} per pair" if pairs is not None and pairs[0] < pairs[1]
                  else f"N = {g.data.n_obs}" if pairs is None else f"N = {pairs[0]}")
+    # each sentence only when it applies to this fit (one note for both would tell of ordinal items under a
+    # continuous fit with gaps)
+    said = [text for applies, text in (
+        (result.method.ordinal, "For ordinal items: polychoric (and polyserial) correlations."),
+        (result.method.full_information,
+         "With full-information estimation: the saturated model's estimates from every answer."),
+    ) if applies]
     return _table(f"correlations_{group}", f"Correlations of the items{where} ({rows_used})",
-                  [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows,
-                  "For ordinal items: polychoric (and polyserial) correlations. With full-information estimation: "
-                  "the saturated model's estimates from every answer." if (result.missing_data or
-                                                                           result.method.ordinal) else None)
+                  [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows, " ".join(said) or None)
 
 
-def normality_lines(result) -> list[str]:
+def normality_lines(result, options: bool = False) -> list[str]:
+    """The multivariate normality tests (or why there are none), with the remedy in words; with ``options``
+    (the terminal) the command-line option follows the words."""
     lines = []
     for g in result.groups:
         n = g.normality
@@ -709,14 +716,15 @@ def normality_lines(result) -> list[str]:
                 f"on {n.skewness_df} df, p {p_phrase(n.skewness_p_value)}; kurtosis {n.kurtosis:.3f} "
                 f"(normal: {n.kurtosis_expected:g}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}.")
         if (n.skewness_p_value < 0.05 or n.kurtosis_p_value < 0.05) and result.robust is None:
-            line += " The data depart from normality: consider the scaled test (--robust)."
+            line += f" The data depart from normality: consider {Remedy.ROBUST.said(options)}."
         lines.append(line)
     if not lines and result.method.full_information and not result.method.ordinal:
         # said, not silently left out: both need every row complete
         lines.append("Mardia's tests of multivariate normality and the table of rows that contribute most to the "
-                     "chi-square need complete rows, so with full-information ML they are not computed "
-                     "(--incomplete-rows listwise gives them for the complete rows; --robust guards the test and the "
-                     "standard errors against non-normal answers either way).")
+                     "chi-square need complete rows, so with full-information ML they are not computed; "
+                     f"{Remedy.COMPLETE_ROWS.said(options)} gives them for those rows, and "
+                     f"{Remedy.ROBUST.said(options)} guard the test and the standard errors against non-normal "
+                     "answers either way.")
     return lines
 
 

@@ -12,6 +12,7 @@ from rich.text import Text
 
 from cfa_tool.errors import printable
 from cfa_tool.reporting import tables as T
+from cfa_tool.reporting.column_parts import column_parts
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
 
 __all__ = ["GUIDE_NOTE", "HIGH_STAKES_NOTE", "SafeConsole", "render", "render_text", "rich_table"]
@@ -62,20 +63,11 @@ class _ColumnParts:
         report = self.report
         widths = [max([len(c) for c in [report.columns[j], *(row[j] for row in report.rows)]] or [0]) + 3
                   for j in range(len(report.columns))]
-        room = options.max_width
-        groups: list[list[int]] = []
-        for j in range(1, len(report.columns)):
-            if groups and widths[0] + sum(widths[i] for i in groups[-1]) + widths[j] <= room:
-                groups[-1].append(j)
-            else:
-                groups.append([j])
-        if len(groups) <= 1 or len(report.columns) <= 2 or sum(widths) <= room:
-            yield self._table(list(range(len(report.columns))))
-            return
-        for k, columns in enumerate(groups):
+        parts = column_parts(widths, options.max_width)
+        for k, columns in enumerate(parts):
             if k:
                 yield Text(f"({printable(report.title)}, continued)", style="dim")
-            yield self._table([0, *columns])
+            yield self._table(columns)
 
     def _table(self, columns: list[int]) -> Table:
         report = self.report
@@ -117,7 +109,7 @@ def render(result, console: Console) -> None:
         console.print(Text(GUIDE_NOTE, style="italic"))
         if result.robust is not None:
             console.print(Text(T.robust_definition(result.robust), style="italic"))
-        for line in T.normality_lines(result):
+        for line in T.normality_lines(result, options=True):
             console.print(line)
         local = T.local_fit_line(result)
         if local:

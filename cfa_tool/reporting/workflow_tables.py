@@ -475,7 +475,7 @@ def montecarlo_report(result) -> Report:
                    f"Power: share of replications in which the parameter differs from zero at alpha {unit(result.alpha, 2)}; "
                    f"coverage: share of 95% Wald intervals that hold the population value (nominal 95%); bias: mean "
                    f"estimate (or mean SE) against the population value (or the SD of the estimates). Population values, "
-                   f"mean estimates and SDs are in the JSON (--json).",
+                   f"mean estimates and SDs are in the JSON result.",
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
@@ -497,7 +497,7 @@ def power_curve_report(curve) -> Report:
     table = _table("power_by_sample_size", "Power per parameter and sample size",
                    [("Parameter", "l")] + [(f"N = {n}", "r") for n in curve.sample_sizes], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha "
-                   f"{unit(first.alpha, 2)}. Coverage and bias at each sample size are in the JSON (--json).",
+                   f"{unit(first.alpha, 2)}. Coverage and bias at each sample size are in the JSON result.",
                    values=(["Parameter", *(f"Power at N = {n}" for n in curve.sample_sizes)], values))
     return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {first.replications} replications "
                                                f"per size (seed {first.seed})", None, tuple(lines), (table,))

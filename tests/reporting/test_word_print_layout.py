@@ -1,0 +1,156 @@
+"""The Word report set for print, read back with python-docx (an independent reader of the file format): numbers
+and intervals that cannot break across lines, wide matrices that fit the page, captions kept with their tables,
+notes that apply to the fit, and manuscript text in words rather than command-line options."""
+
+from __future__ import annotations
+
+import io
+
+import docx
+import pytest
+from docx.enum.section import WD_ORIENT
+from docx.oxml.ns import qn
+from docx.shared import Emu, Pt
+
+import cfa_tool
+from cfa_tool.reporting import tables as T
+from cfa_tool.reporting.column_parts import column_parts
+from cfa_tool.reporting.document import Report, ResultKind
+from cfa_tool.reporting.docx_report import WIDE_SIZE, docx_report, report_docx, typeset
+from cfa_tool.reporting.html_report import html_report
+from cfa_tool.reporting.remedies import Remedy
+from cfa_tool.reporting.tables import ReportTable
+from cfa_tool.reporting.text_formats import all_tables, markdown_report
+from cfa_tool.resources import resource_dir
+
+ORDINAL_WORDS = "ordinal"
+
+
+@pytest.fixture(scope="module")
+def rider():
+    # the demo data hold 9 missing answers: a continuous fit by full-information ML of 12 items, whose item
+    # correlation and residual correlation matrices have 11 numeric columns
+    result = cfa_tool.fit(resource_dir("models") / "rider_three_factors.cfa", resource_dir("demo") / "rider_survey.csv")
+    assert result.method.full_information and not result.method.ordinal
+    return result
+
+
+@pytest.fixture(scope="module")
+def word(rider):
+    return docx.Document(io.BytesIO(docx_report(rider)))
+
+
+def _tables_by_section(document) -> list[tuple[object, object]]:
+    """(table, section) in the order of the body: a section ends at a paragraph that holds its properties."""
+    sections, found, k = list(document.sections), [], 0
+    tables = iter(document.tables)
+    for child in document.element.body.iterchildren():
+        if child.tag == qn("w:tbl"):
+            found.append((next(tables), k))
+        elif child.tag == qn("w:p") and child.find(f"{qn('w:pPr')}/{qn('w:sectPr')}") is not None:
+            k += 1
+    return [(table, sections[s]) for table, s in found]
+
+
+def _text_width(section) -> float:
+    return Emu(section.page_width - section.left_margin - section.right_margin).pt
+
+
+def _table_width(table) -> float:
+    return sum(int(c.get(qn("w:w"))) for c in table._tbl.tblGrid.findall(qn("w:gridCol"))) / 20
+
+
+def test_typeset_keeps_numbers_and_intervals_whole():
+    assert typeset("[-0.99, -0.77]") == "[\u22120.99,\u00a0\u22120.77]"
+    assert typeset("-.02", numeric=True) == "\u2212.02"
+    assert typeset("< .001", numeric=True) == "<\u00a0.001"
+    # hyphens inside words and the words between intervals stay as they are
+    assert typeset("Item-rest r and full-information ML, x1-x3") == "Item-rest r and full-information ML, x1-x3"
+    assert typeset("from [.04, .09] to 0.5") == "from [.04,\u00a0.09] to 0.5"
+    assert typeset("gave p = .186, N = 900 and r < -.30") == "gave p\u00a0=\u00a0.186, N\u00a0=\u00a0900 and r\u00a0<\u00a0\u2212.30"
+    assert typeset("a = b") == "a = b"  # a relation between words may break as words do
+
+
+def test_numeric_cells_do_not_wrap_and_hold_no_breakable_minus_or_space(word, rider):
+    expected = all_tables(rider)
+    assert len(word.tables) == len(expected)
+    for grid, table in zip(word.tables, expected):
+        for r, row in enumerate(grid.rows[1:]):
+            for cell, align, value in zip(row.cells, table.align, table.rows[r]):
+                if align != "r":
+                    continue
+                assert cell._tc.tcPr.find(qn("w:noWrap")) is not None, (table.title, value)
+                assert " " not in cell.text and "-" not in cell.text, (table.title, cell.text)
+    intervals = [c.text for g in word.tables for row in g.rows for c in row.cells if c.text.startswith("[")]
+    assert intervals and all(" " not in t for t in intervals)
+    assert any("\u2212" in c.text for g in word.tables for row in g.rows for c in row.cells)  # negative values exist
+
+
+def test_wide_matrices_are_on_a_landscape_page_in_small_type_and_every_table_fits_its_page(word, rider):
+    placed = _tables_by_section(word)
+    titles = [t.title for t in all_tables(rider)]
+    wide = [k for k, t in enumerate(all_tables(rider)) if t.key.startswith(("correlations_", "residual"))]
+    assert len(wide) == 2, titles
+    for k, (table, section) in enumerate(placed):
+        assert _table_width(table) <= _text_width(section) + 0.5, titles[k]
+        landscape = section.orientation == WD_ORIENT.LANDSCAPE
+        assert landscape == (k in wide), titles[k]
+        assert (section.page_width > section.page_height) == landscape
+        if landscape:
+            sizes = {run.font.size for row in table.rows for c in row.cells for p in c.paragraphs for run in p.runs}
+            assert sizes == {Pt(WIDE_SIZE)}
+    # the figures and cautions after the tables are on portrait pages again
+    assert word.sections[-1].orientation == WD_ORIENT.PORTRAIT
+
+
+def test_captions_and_rows_are_kept_with_their_table_and_the_header_repeats(word):
+    paragraphs = word.paragraphs
+    labels = [k for k, p in enumerate(paragraphs) if p.text.startswith("Table ")]
+    assert len(labels) == len(word.tables)
+    for k in labels:
+        assert paragraphs[k].paragraph_format.keep_with_next and paragraphs[k + 1].paragraph_format.keep_with_next
+    for table in word.tables:
+        assert table.rows[0]._tr.trPr.find(qn("w:tblHeader")) is not None
+        assert all(p.paragraph_format.keep_with_next for row in table.rows for c in row.cells for p in c.paragraphs)
+
+
+def test_a_table_too_wide_even_in_landscape_comes_in_parts_with_its_label_column():
+    columns = ("Item",) + tuple(f"Column {k}" for k in range(1, 41))
+    rows = tuple((f"item{i}",) + tuple(f"[-{i}.{k:02d}, {k}.50]" for k in range(1, 41)) for i in range(3))
+    table = ReportTable("big", "A very wide table", columns, ("l",) + ("r",) * 40, rows, "The note.")
+    document = docx.Document(io.BytesIO(report_docx(Report(ResultKind.FIT, "Wide", None, (), (table,)))))
+    texts = [p.text for p in document.paragraphs]
+    parts = len(document.tables)
+    assert parts > 1 and texts.count("Table 1") == 1 and texts.count("Table 1 (continued)") == parts - 1
+    assert texts.count("The note.") == 0 and sum(t.endswith("The note.") for t in texts) == 1  # one note, at the end
+    seen = []
+    for grid, section in _tables_by_section(document):
+        assert section.orientation == WD_ORIENT.LANDSCAPE
+        assert _table_width(grid) <= _text_width(section) + 0.5
+        assert grid.rows[0].cells[0].text == "Item" and grid.rows[1].cells[0].text == "item0"
+        seen += [c.text for c in grid.rows[0].cells[1:]]
+    assert seen == list(columns[1:])  # every column once, in order
+
+
+def test_column_parts_is_the_terminals_rule():
+    assert column_parts([5, 3, 3], 20) == [[0, 1, 2]]
+    assert column_parts([5, 3, 3, 3], 11) == [[0, 1, 2], [0, 3]]
+    assert column_parts([5, 9, 9], 10) == [[0, 1], [0, 2]]  # a column wider than the room still gets a part
+
+
+def test_no_ordinal_note_under_a_continuous_fit_in_any_format(rider, word):
+    correlations = next(t for t in all_tables(rider) if t.key.startswith("correlations_"))
+    assert correlations.note == "With full-information estimation: the saturated model's estimates from every answer."
+    assert ORDINAL_WORDS not in markdown_report(rider).lower()
+    assert ORDINAL_WORDS not in html_report(rider).lower()
+    assert not any(ORDINAL_WORDS in p.text.lower() for p in word.paragraphs)
+
+
+def test_manuscript_text_says_remedies_in_words_and_the_terminal_adds_the_option(rider, word):
+    assert not any("--" in p.text for p in word.paragraphs)
+    words, terminal = T.normality_lines(rider), T.normality_lines(rider, options=True)
+    assert len(words) == 1 and "--" not in words[0] and Remedy.COMPLETE_ROWS.words in words[0]
+    assert f"{Remedy.COMPLETE_ROWS.words} ({Remedy.COMPLETE_ROWS.option})" in terminal[0]
+    assert f"{Remedy.ROBUST.words} ({Remedy.ROBUST.option})" in terminal[0]
+    assert words[0] in markdown_report(rider)
+    assert terminal[0] not in markdown_report(rider)
