@@ -195,6 +195,12 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
                             f"more than one group of '{printable(group)}'; the groups are fitted as independent samples, "
                             f"so every cluster must lie within one group")
+    if columns.cluster is not None:
+        names = pd.unique(frame[columns.cluster].astype(str))
+        if len(names) < 2:
+            raise DataError(f"{source}: column '{printable(columns.cluster)}' names a single cluster "
+                            f"('{printable(names[0])}'), and cluster-robust standard errors need at least two (and "
+                            f"about 30 or more to be trusted); remove the cluster column or give the right one")
     if columns.strata is not None:
         units = frame[columns.cluster].astype(str) if columns.cluster is not None else pd.Series(np.arange(len(frame)),
                                                                                                  index=frame.index)
@@ -230,7 +236,21 @@ def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.
         if fraction.any():
             raise DataError(f"{where} {rows[np.argmax(fraction)]}: frequency weights count rows and must be whole "
                             f"numbers, not {values[np.argmax(fraction)]:g} (for sampling weights leave out the kind)")
+        if values.sum() > MAX_FREQUENCY_TOTAL:
+            raise DataError(f"{source}: the frequency weights in column '{printable(name)}' count {values.sum():.3g} rows, "
+                            f"more than the {MAX_FREQUENCY_TOTAL:,.0f} the tool computes with")
+    elif values.max(initial=0.0) > 0 and not WEIGHT_RANGE[0] <= values.max() <= WEIGHT_RANGE[1]:
+        raise DataError(f"{source}: the sampling weights in column '{printable(name)}' reach {values.max():.3g}, outside "
+                        f"the range the tool computes with ({WEIGHT_RANGE[0]:g} to {WEIGHT_RANGE[1]:g}); sampling weights "
+                        f"count only relative to each other, so divide the column by its mean")
     return values
+
+
+#: the largest sampling weight must lie in this range (the weights are rescaled, but sums of squares of far
+#: smaller or larger numbers leave the range of floating-point numbers)
+WEIGHT_RANGE = (1e-100, 1e100)
+#: frequency weights may count at most this many rows (fit indices of larger N are not computed reliably)
+MAX_FREQUENCY_TOTAL = 1e9
 
 
 def row_design(frame: pd.DataFrame, columns: DesignColumns, kept: np.ndarray) -> RowDesign:

@@ -59,11 +59,23 @@ class ReportTable:
 
     @classmethod
     def from_dict(cls, d: dict) -> "ReportTable":
-        return cls(str(d["key"]), str(d["title"]), tuple(map(str, d["columns"])), tuple(map(str, d["align"])),
-                   tuple(tuple(map(str, r)) for r in d["rows"]), d.get("note"), tuple(map(int, d.get("flagged", ()))),
-                   None if d.get("value_columns") is None else tuple(map(str, d["value_columns"])),
-                   None if d.get("values") is None else tuple(tuple(r) for r in d["values"]),
-                   tuple((int(i), int(j)) for i, j in d.get("faint", ())))
+        """A saved table, checked to be whole (a ValueError when a row, the alignment or a marked cell does not
+        fit its columns, as after editing by hand)."""
+        table = cls(str(d["key"]), str(d["title"]), tuple(map(str, d["columns"])), tuple(map(str, d["align"])),
+                    tuple(tuple(map(str, r)) for r in d["rows"]), d.get("note"), tuple(map(int, d.get("flagged", ()))),
+                    None if d.get("value_columns") is None else tuple(map(str, d["value_columns"])),
+                    None if d.get("values") is None else tuple(tuple(r) for r in d["values"]),
+                    tuple((int(i), int(j)) for i, j in d.get("faint", ())))
+        width = len(table.columns)
+        if (not width or len(table.align) != width or any(a not in ("l", "r") for a in table.align)
+                or any(len(r) != width for r in table.rows)
+                or any(not 0 <= k < len(table.rows) for k in table.flagged)
+                or any(not (0 <= i < len(table.rows) and 0 <= j < width) for i, j in table.faint)
+                or (table.values is not None and (table.value_columns is None or any(
+                    len(r) != len(table.value_columns) for r in table.values)))
+                or (table.note is not None and not isinstance(table.note, str))):
+            raise ValueError("a table that does not fit its columns")
+        return table
 
 
 def _plain(value):

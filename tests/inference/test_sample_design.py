@@ -386,3 +386,19 @@ def test_a_cluster_across_groups_is_an_error(hs_data):
     data = hs_data.assign(unit=np.arange(len(hs_data)) % 20)  # every unit has rows in both schools
     with pytest.raises(DataError, match="has rows in more than one group of 'school'"):
         cfa_tool.fit(THREE_FACTORS, data, group="school", cluster="unit")
+
+
+@pytest.mark.parametrize("column, values, kind, words", [
+    ("clu", "only", None, "names a single cluster ('only')"),
+    ("w", 1e-300, None, "outside the range the tool computes with"),
+    ("w", 1e200, None, "outside the range the tool computes with"),
+    ("w", 10**9, "frequency", "more than the 1,000,000,000 the tool computes with"),
+])
+def test_designs_beyond_what_can_be_computed_are_one_line_errors(hs_data, column, values, kind, words):
+    # found by a hostile trial: each gave an internal error (division by zero, NaN in a root search)
+    from cfa_tool.errors import DataError
+
+    data = hs_data.assign(**{column: values})
+    options = {"cluster": column} if column == "clu" else {"weights": column, "weight_kind": kind}
+    with pytest.raises(DataError, match=words.replace("(", r"\(").replace(")", r"\)")):
+        cfa_tool.fit(THREE_FACTORS, data, **options)

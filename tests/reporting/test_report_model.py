@@ -301,3 +301,23 @@ def test_an_old_fit_result_names_what_to_do(tmp_path, capsys, hs_data):
     path.write_text(json.dumps(old))
     code, _, err = _run(["report", path], capsys)
     assert code == 2 and "run the command again with --json" in _error_line(err)
+
+
+@pytest.mark.parametrize("edit", ["short row", "no columns", "flag beyond the rows"])
+def test_a_saved_report_edited_out_of_shape_is_a_one_line_error(tmp_path, capsys, hs_data, edit):
+    # found by a hostile trial: a table row cut short crashed every format halfway through printing
+    saved = tmp_path / "power.json"
+    (tmp_path / "a.cfa").write_text(THREE)
+    code, _, err = _run(["power", tmp_path / "a.cfa", "--n", 200, "--json", saved], capsys)
+    assert code == 0, err
+    payload = json.loads(saved.read_text())
+    table = payload["report"]["tables"][0]
+    if edit == "short row":
+        table["rows"][0] = table["rows"][0][:-1]
+    elif edit == "no columns":
+        table["columns"], table["align"], table["rows"] = [], [], []
+    else:
+        table["flagged"] = [len(table["rows"]) + 3]
+    saved.write_text(json.dumps(payload))
+    code, out, err = _run(["report", saved], capsys)
+    assert code == 2 and "incomplete or changed by hand" in _error_line(err) and out == ""
