@@ -96,6 +96,10 @@ def _resample(rows: np.ndarray, names: tuple[str, ...], seed: int, design):
     rng = np.random.default_rng(seed)
     if design is None:
         return moments_from_rows(rows[rng.integers(0, len(rows), len(rows))], names)
+    if design.kind is WeightKind.FREQUENCY and design.clusters is None:
+        counts = expanded_counts(design, rng)
+        kept = counts > 0
+        return moments_from_rows(rows[kept], names, weights=counts[kept].astype(float), n_obs=int(counts.sum()))
     picked = resampled_rows(design, rng)
     w = design.weights[picked]
     n_obs = int(round(w.sum())) if design.kind is WeightKind.FREQUENCY else len(picked)
@@ -115,6 +119,21 @@ def sampling_units(design) -> list[list[np.ndarray]]:
         bounds = np.searchsorted(inverse.ravel()[order], np.arange(len(codes) + 1))
         out.append([in_h[order[bounds[c]:bounds[c + 1]]] for c in range(len(codes))])
     return out
+
+
+def expanded_counts(design, rng: np.random.Generator) -> np.ndarray:
+    """How often each record is drawn when the rows its frequency weight stands for are resampled (within
+    strata): a row of weight k is k rows, so a resample draws sum(k) rows from them, each with probability
+    k / sum(k) per draw (a multinomial count per record), as resampling the expanded data would."""
+    n = len(design.weights)
+    strata = design.strata if design.strata is not None else np.zeros(n, dtype=int)
+    counts = np.zeros(n, dtype=np.int64)
+    for h in np.unique(strata):
+        in_h = np.flatnonzero(strata == h)
+        w = design.weights[in_h]
+        total = int(round(w.sum()))
+        counts[in_h] = rng.multinomial(total, w / w.sum())
+    return counts
 
 
 def resampled_rows(design, rng: np.random.Generator) -> np.ndarray:
