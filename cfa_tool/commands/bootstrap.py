@@ -15,6 +15,7 @@ def add_parser(sub) -> None:
                                 "number of resamples")
     O.add_ordinal_options(p)
     O.add_design_options(p)
+    O.add_incomplete_rows_option(p, O.COMPLETE_ROWS_ONLY)
 
 
 def run(args: argparse.Namespace) -> int:
@@ -25,5 +26,5 @@ def run(args: argparse.Namespace) -> int:
         result = bootstrap(Path(args.model), args.data, args.replications, args.seed, workers=args.workers,
                            scheduler=args.scheduler, progress=advance, sheet=args.sheet,
                            missing_codes=args.missing_codes, keep=args.keep, ordinal=O.ordinal_arg(args.ordinal),
-                           ordinal_estimator=args.ordinal_estimator, **O.design_args(args))
+                           ordinal_estimator=args.ordinal_estimator, missing=args.missing, **O.design_args(args))
     return emit(args, result)

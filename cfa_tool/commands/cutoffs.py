@@ -14,6 +14,7 @@ def add_parser(sub) -> None:
                                 "items: simulated as ordinal answers, cutoffs of the adjusted indices)", 200,
                                 "samples per population")
     O.add_ordinal_options(p)
+    O.add_incomplete_rows_option(p, O.COMPLETE_ROWS_ONLY)
     O.refuse_design_options(p, "cutoffs are simulated from samples of independent, equally weighted rows, and a "
                                "sampling design (weights, clusters, strata) cannot be simulated from the data alone; "
                                "run cutoffs without it and compare with the fit's design-based statistics with care")
@@ -26,5 +27,6 @@ def run(args: argparse.Namespace) -> int:
     with progress(args.command) as advance:
         result = cutoffs(Path(args.model), args.data, args.replications, args.seed, args.workers, args.scheduler,
                          advance, sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
-                         ordinal=O.ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator)
+                         ordinal=O.ordinal_arg(args.ordinal), ordinal_estimator=args.ordinal_estimator,
+                         missing=args.missing)
     return emit(args, result)

@@ -127,6 +127,11 @@ def add_run_options(p: argparse.ArgumentParser) -> None:
     add_report_options(p)
 
 
+#: where the refits of a command use the complete rows only
+COMPLETE_ROWS_ONLY = ("; for continuous items this command refits the complete rows only, so 'listwise' must be "
+                      "given when that leaves out more than 5% of the rows")
+
+
 def add_incomplete_rows_option(p: argparse.ArgumentParser, where: str = "") -> None:
     p.add_argument("--incomplete-rows", dest="missing", choices=MissingData.words(), default=None,
                    help="rows with some answers missing: kept and used by full-information ML (the default when a model "

@@ -21,7 +21,7 @@ from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summ
 from cfa_tool import options as opt
 from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.pipeline.continuous import FitOptions, fit_moments
+from cfa_tool.pipeline.continuous import LISTWISE_WARNING_SHARE, FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import FitTest, MissingData, WeightKind, Weighting
@@ -463,6 +463,27 @@ def continuous_only(spec: Spec, command: str) -> Spec:
                          f"remove the 'ordinal' statement to analyse the items as continuous ('fit' and 'invariance' "
                          f"handle ordinal items)", name.location, spec.source_line(name.location))
     return spec
+
+
+def refits_complete_rows(frame: pd.DataFrame, names: tuple[str, ...], missing, command: str) -> None:
+    """Commands whose refits use the complete rows only (full-information refits are not built for them): when
+    missing answers would leave out more than LISTWISE_WARNING_SHARE of the rows, that must be asked for
+    (``missing='listwise'``, --incomplete-rows listwise), as fit keeps every row by default; fewer are left out
+    and the report says how many."""
+    missing = None if missing is None else MissingData.parse(missing, "the handling of rows with missing answers")
+    if missing is MissingData.FULL_INFORMATION:
+        raise OptionError(f"'{command}' refits the complete rows only, so full-information ML cannot apply here yet; "
+                          f"give --incomplete-rows listwise or leave the option out")
+    if missing is MissingData.LISTWISE:
+        return
+    gap = np.zeros(len(frame), dtype=bool)
+    for name in names:
+        gap |= frame[name].isna().to_numpy()
+    if gap.sum() > LISTWISE_WARNING_SHARE * len(frame):
+        raise OptionError(f"{int(gap.sum())} of {len(frame)} rows miss some answers on model variables, and "
+                          f"'{command}' refits the complete rows only (fit keeps every row by full-information ML, "
+                          f"which is not available here yet); add --incomplete-rows listwise to use the "
+                          f"{int((~gap).sum())} complete rows")
 
 
 def without_exploratory_blocks(spec: Spec, command: str, why: str) -> Spec:

@@ -343,11 +343,20 @@ ORDINAL_BOOTSTRAP = ("Ordinal items: each resample gets its own thresholds and p
                      "for ordinal answers, so the test of fit remains the fit's adjusted one.")
 
 
+def _left_out(result) -> str:
+    """The rows with missing answers a command that refits complete rows left out ('' when none were)."""
+    d = result.data
+    if not d.rows_dropped or result.method.ordinal:
+        return ""
+    return f" ({d.rows_dropped} of {d.rows_read} rows with missing answers left out: the refits use complete rows)"
+
+
 def bootstrap_report(boot) -> Report:
     result = boot.fit
     ordinal = result.method.ordinal
     not_converged = boot.replications - boot.converged - boot.failed
-    lines = [f"{boot.replications} resamples of {result.n_obs} rows (seed {boot.seed}); {boot.converged} converged, "
+    lines = [f"{boot.replications} resamples of {result.n_obs} rows{_left_out(result)} (seed {boot.seed}); "
+             f"{boot.converged} converged, "
              f"{not_converged} did not" + (f" and {boot.failed} could not be analysed (an item lost an answer category, "
                                            f"or the correlations were not positive definite)" if boot.failed else "")
              + "; those are left out of the intervals."]
@@ -410,7 +419,7 @@ def cutoffs_report(cut) -> Report:
     table = _table("cutoffs", "Cutoffs", [("Index", "l"), ("Level", "r"), ("Cutoff", "r"), ("This model", "r"),
                                           ("Reading", "l")], rows,
                    values=(["Index", "Level", "Cutoff", "This model", "Reading"], values))
-    lines = (f"{cut.replications} samples of N = {cut.n_obs} from the fitted model and from the model with "
+    lines = (f"{cut.replications} samples of N = {cut.n_obs}{_left_out(result)} from the fitted model and from the model with "
              f"{cut.misspecification} left out (seed {cut.seed}).",)
     if result.method.ordinal:
         lines += (f"Ordinal items: each sample's latent responses are cut at the fitted thresholds, and the sample is "

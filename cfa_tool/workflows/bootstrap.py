@@ -39,7 +39,8 @@ from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_r
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.method import WeightKind
 from cfa_tool.pipeline.inputs import (_fit_rows, converged, design_test, moments_for, ordinal_items_of,
-                                      read_inputs_with_notes, with_design, without_exploratory_blocks)
+                                      read_inputs_with_notes, refits_complete_rows, with_design,
+                                      without_exploratory_blocks)
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.parallel import REFITS_TOGETHER, run_tasks
@@ -354,7 +355,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
               progress=None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               keep: tuple[str, ...] | list[str] = (), weights: str | None = None, cluster: str | None = None,
               strata: str | None = None, weight_kind: str | None = None, ordinal: str | list[str] | None = None,
-              ordinal_estimator: str | None = None):
+              ordinal_estimator: str | None = None, missing: str | None = None):
     """Fit the model, then bootstrap it: the result holds the fit (``.fit``) and its bootstrap.  A sampling design (``weights``,
     ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights the fit and every resample, and the
     resamples draw whole clusters within strata.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and
@@ -372,6 +373,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
         result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
         return bootstrap_fit(result, spec, numeric_columns(frame, result.observed, source), replications, seed,
                              bollen_stine, False, workers, scheduler, progress)
+    refits_complete_rows(frame, spec.observed_names, missing, "bootstrap")
     options = FitOptions()
     if design is not None:
         frame, _ = check_design(frame, design, spec.observed_names, None, source)

@@ -27,7 +27,8 @@ from cfa_tool import options as check
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import OptionError
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fits
-from cfa_tool.pipeline.inputs import _fit_rows, converged, ordinal_items_of, read_inputs_with_notes
+from cfa_tool.pipeline.inputs import (_fit_rows, converged, ordinal_items_of, read_inputs_with_notes,
+                                      refits_complete_rows)
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
@@ -269,7 +270,7 @@ def _cutoffs(correct: np.ndarray, mis: np.ndarray) -> dict[tuple[str, float], fl
 def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 200, seed: int = 1,
             workers: int | None = None, scheduler: str | None = None, progress=None, sheet: str | None = None,
             missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
-            ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None):
+            ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None):
     """Fit the model, then simulate model-specific fit-index cutoffs: the result holds the fit (``.fit``) and the
     cutoffs.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and ``ordinal_estimator`` as for ``fit``) are
     fitted by least squares, the samples are simulated as ordinal answers and fitted so, and the cutoffs are of
@@ -280,5 +281,6 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
         result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
         return fit_cutoffs(spec, result, replications, seed, workers, scheduler, progress)
+    refits_complete_rows(frame, spec.observed_names, missing, "cutoffs")
     result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
     return fit_cutoffs(spec, result, replications, seed, workers, scheduler, progress)

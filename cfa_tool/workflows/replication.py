@@ -27,7 +27,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import load_frame, load_spec, make_options
+from cfa_tool.pipeline.inputs import load_frame, load_spec, make_options, refits_complete_rows
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, sample_moments
@@ -179,16 +179,21 @@ def _same_file(first, second) -> bool:
 
 
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
-              ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, **options) -> Replication:
+              ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
+              **options) -> Replication:
     """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
     their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too)."""
     spec = load_spec(model)
-    ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator, options)
+    ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator, options if missing is None else {**options, "missing": missing})
     if _same_file(calibration, validation):
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           "new data (or give one file as --data to split it in two random halves)")
     cal_frame, cal_source = load_frame(calibration)
     val_frame, val_source = load_frame(validation)
+    if not ordinal_items:
+        for frame, source in ((cal_frame, cal_source), (val_frame, val_source)):
+            check_columns(spec, [str(c) for c in frame.columns], source)
+            refits_complete_rows(frame, spec.observed_names, missing, "replicate")
     if ordinal_items:
         return replicate_ordinal(spec, _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise),
                                  _ordinal_moments(spec, val_frame, val_source, ordinal_items, pairwise), method, **options)
@@ -196,14 +201,15 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
 
 
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1,
-               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None,
+               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
                **options) -> tuple[Replication, Replication]:
     """Random halves A and B (seeded) of the complete rows: calibrate on A and validate on B, then the reverse."""
     seed = check.seed(seed)
     spec = load_spec(model)
-    ordinal_items, method, _ = _ordinal_setup(spec, ordinal, ordinal_estimator, options)
+    ordinal_items, method, _ = _ordinal_setup(spec, ordinal, ordinal_estimator, options if missing is None else {**options, "missing": missing})
     frame, source = load_frame(data)
     check_columns(spec, [str(c) for c in frame.columns], source)
+    refits_complete_rows(frame, spec.observed_names, missing, "replicate")
     complete = frame.dropna(subset=list(spec.observed_names))
     if len(complete) < 4 * len(spec.observed_names):
         raise DataError(f"{source}: {len(complete)} complete rows are too few to split into two halves for "

@@ -190,3 +190,32 @@ def test_robust_comparison_with_gaps_says_why_the_positive_version_is_missing(hs
     missing_positive = [t for t in result.tests if t.not_computed]
     assert len(missing_positive) == 1 and "full-information" in missing_positive[0].not_computed
     assert len(methods) == 3
+
+
+@pytest.mark.parametrize("command", ["bootstrap", "cutoffs", "replicate"])
+def test_commands_that_refit_complete_rows_never_drop_rows_silently(hs_data, command):
+    # fit keeps every row by default; these commands refit complete rows only, so with gaps leaving rows out
+    # must be asked for (a new user's file lost 700 of 900 rows without a word)
+    data = hs_data.copy()
+    data.loc[data.index[:30], "x5"] = np.nan
+    run = {"bootstrap": lambda **o: cfa_tool.bootstrap(THREE_FACTORS, data, replications=20, bca=False,
+                                                       bollen_stine=False, **o),
+           "cutoffs": lambda **o: cfa_tool.cutoffs(THREE_FACTORS, data, replications=20, **o),
+           "replicate": lambda **o: split_half(THREE_FACTORS, data, **o)}[command]
+    with pytest.raises(OptionError, match=f"30 of 301 rows miss some answers.*'{command}' refits the complete rows"):
+        run()
+    with pytest.raises(OptionError, match="full-information ML cannot apply here yet"):
+        run(missing="full-information")
+    kept = run(missing="listwise")
+    fitted = kept[0].calibration_result if command == "replicate" else kept.fit
+    assert fitted.n_obs in (271, 135, 136)
+
+
+def test_a_few_incomplete_rows_are_left_out_and_said(hs_data):
+    from cfa_tool.reporting.workflow_tables import bootstrap_report
+
+    data = hs_data.copy()
+    data.loc[data.index[:5], "x5"] = np.nan  # under 5% of the rows
+    boot = cfa_tool.bootstrap(THREE_FACTORS, data, replications=20, bca=False, bollen_stine=False)
+    assert boot.fit.n_obs == 296
+    assert "(5 of 301 rows with missing answers left out" in bootstrap_report(boot).lines[0]
