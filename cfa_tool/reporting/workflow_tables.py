@@ -245,8 +245,12 @@ def invariance_report(result) -> Report:
                  num(f.score, 2)] for f in result.freed]
         values = [[f.level, f"{f.kind.replace('_', ' ')} {', '.join(f.variables)}", *([str(f.group)] if many else []),
                    f.score] for f in result.freed]
-        columns = [("Level", "l"), ("Parameter", "l")] + ([("Group", "l")] if many else []) + [("Score test", "r")]
-        tables.append(_table("freed", "Parameters freed by the partial-invariance search", columns, rows,
+        columns = [("Level", "l"), ("Parameter", "l")] + ([("Pointed to by group", "l")] if many else []) + [
+            ("Score test", "r")]
+        note = ("Each freed parameter is freed in every group: its equality across the groups is dropped, so it may "
+                "differ between any of them; 'Pointed to by group' names the group whose constraint had the largest "
+                "score test." if many else None)
+        tables.append(_table("freed", "Parameters freed by the partial-invariance search", columns, rows, note,
                              values=([c for c, _ in columns], values)))
     for step in result.steps:
         if step.stopped and (step.partial or step.stopped != "the step holds"):

@@ -66,6 +66,12 @@ def test_five_groups_name_the_group_of_a_freed_parameter():
     scalar = next(s for s in result.steps if s.level == "scalar")
     assert scalar.partial and scalar.full_holds is False and scalar.holds
     assert scalar.full_test.df_difference > scalar.versus_previous.df_difference
+    # the equality is dropped across all five groups (4 df), so the table must not read as if only g5 were freed
+    assert scalar.full_test.df_difference - scalar.versus_previous.df_difference == 4
+    from cfa_tool.reporting.workflow_tables import invariance_report
+
+    freed = next(t for t in invariance_report(result).tables if t.key == "freed")
+    assert "Pointed to by group" in freed.columns and "freed in every group" in freed.note
 
 
 def test_partial_step_keeps_its_full_constraint_test_and_the_reason_the_search_stopped(hs_data):
