@@ -101,15 +101,17 @@ def comparison_report(comparison) -> Report:
     total = comparison.n_obs + comparison.rows_dropped
     cautions = []
     full_information = comparison.missing is MissingData.FULL_INFORMATION
-    if comparison.rows_dropped > 0.05 * total and not full_information:
+    if comparison.rows_dropped > 0.05 * total and not (full_information or comparison.missing is MissingData.PAIRWISE):
         cautions.append(f"{comparison.rows_dropped} of {total} rows ({100 * comparison.rows_dropped / total:.0f}%) miss an "
                         f"answer on some model's variables and are left out of every model, so that all are compared on "
                         f"the same rows; the rows left out may differ from those kept.")
-    if full_information:
+    pairwise = comparison.missing is MissingData.PAIRWISE
+    if full_information or pairwise:
         left = (f"{comparison.rows_dropped} rows answering none of some model's variables left out" if
                 comparison.rows_dropped else "no row left out")
-        rows_line = (f"All models fitted to the same {comparison.n_obs} rows by full-information ML, rows with missing "
-                     f"answers included ({left}).")
+        how = ("every answer used: each correlation from the rows that answered both items" if pairwise else
+               "by full-information ML, rows with missing answers included")
+        rows_line = f"All models fitted to the same {comparison.n_obs} rows, {how} ({left})."
     else:
         rows_line = (f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
                      f"answer on any model's variables left out).")

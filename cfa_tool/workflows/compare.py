@@ -114,15 +114,17 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     used = sorted({x for spec in specs for x in spec.observed_names})
     if group is not None and group in frame.columns:
         frame = frame.loc[frame[group].notna()]
+    pairwise = False
     if ordinal_items:
         if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is FitTest.YUAN_BENTLER:
-            raise OptionError("ordinal items are compared on the rows complete on every model's variables; "
-                              "full-information ML and its Yuan-Bentler test are for continuous items")
-        fit_options = replace(fit_options, missing=MissingData.LISTWISE)
+            raise OptionError("ordinal items are compared on every answer (pairwise present rows, as fit uses them) or "
+                              "on the complete rows (--incomplete-rows listwise); full-information ML and its "
+                              "Yuan-Bentler test are for continuous items")
+        pairwise = fit_options.missing is not MissingData.LISTWISE
     else:
         fit_options, missing_notes = choose_missing_handling(fit_options, frame, tuple(used), None)
         notes = list(missing_notes) + list(notes)
-    if fit_options.missing is MissingData.FULL_INFORMATION:  # the rows every model can use: some answer on its items
+    if fit_options.missing is MissingData.FULL_INFORMATION or pairwise:  # the rows every model can use: some answers
         answers = [frame[list(spec.observed_names)].notna().to_numpy().any(axis=1) for spec in specs]
         complete = frame.loc[np.logical_and.reduce(answers)]
     else:
@@ -132,8 +134,9 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         complete, _ = check_design(complete, design, tuple(used_columns), group, source)
     dropped = len(loaded.frame) - len(complete)
     if ordinal_items:
-        return _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items,
-                                ordinal_estimator, dropped, design)
+        return _compare_ordinal(specs, names, complete, source, group, reference_group,
+                                replace(fit_options, missing=None if pairwise else MissingData.LISTWISE), ordinal_items,
+                                ordinal_estimator, dropped, design, pairwise)
     results = []
     data_groups = []
     for spec, name in zip(specs, names):
@@ -149,17 +152,18 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
 
 
 def _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items, method,
-                     dropped, design=None) -> Comparison:
+                     dropped, design=None, pairwise: bool = False) -> Comparison:
     from cfa_tool.workflows.ordinal_compare import fit_ordinal_models, ordinal_difference_test
 
     estimations, results = fit_ordinal_models(specs, complete, source, group, reference_group, fit_options,
-                                              ordinal_items, method, design)
+                                              ordinal_items, method, design, pairwise)
     def test_pair(a: int, b: int) -> tuple[list[DifferenceTest], str]:
         test, reason = ordinal_difference_test(estimations[a], estimations[b], results[a], results[b], names[a], names[b])
         return ([test] if test is not None else []), reason
 
     tests, not_nested = _each_pair(names, results, test_pair, specs, likelihood=False)
-    return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped)
+    return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
+                      MissingData.PAIRWISE if pairwise else MissingData.LISTWISE)
 
 
 def _compare_summary(specs, names, path, fit_options, group) -> Comparison:

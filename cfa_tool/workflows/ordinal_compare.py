@@ -26,9 +26,10 @@ from cfa_tool.workflows.nesting import NESTING_TOLERANCE, DifferenceTest
 
 
 def fit_ordinal_models(specs, complete, source, group, reference_group, fit_options, ordinal_items, method,
-                       design=None):
-    """(estimations, results) of every model on the same complete rows (weighted, with design-based standard
-    errors and tests, under a sampling ``design``: its DesignColumns, already checked)."""
+                       design=None, pairwise: bool = False):
+    """(estimations, results) of every model on the same rows (weighted, with design-based standard errors and
+    tests, under a sampling ``design``: its DesignColumns, already checked); ``pairwise``: each statistic from
+    the rows that answered its items (pairwise present rows), otherwise the rows are complete ones."""
     from cfa_tool.data.sample_design import design_summary
     from cfa_tool.inference.design import ordinal_design_covariance
     from cfa_tool.pipeline.inputs import check_ordinal_options, ordinal_groups, with_design
@@ -42,9 +43,11 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
     for spec in specs:
         if group is None:
             groups = [("all", ordinal_design_covariance(ordinal_moments(complete, spec.observed_names, source,
-                                                                        frozenset(items - ordinal_items), design=design)))]
+                                                                        frozenset(items - ordinal_items), design=design,
+                                                                        pairwise=pairwise)))]
         else:
-            groups, _ = ordinal_groups(spec, complete, source, group, reference_group, ordinal_items, design=design)
+            groups, _ = ordinal_groups(spec, complete, source, group, reference_group, ordinal_items, pairwise,
+                                       design=design)
         with estimation_of(f"model {spec.title or spec.source}"):
             est = estimate_ordinal_groups(spec, groups, fit_options, method)
             result = assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False)

@@ -219,3 +219,22 @@ def test_a_few_incomplete_rows_are_left_out_and_said(hs_data):
     boot = cfa_tool.bootstrap(THREE_FACTORS, data, replications=20, bca=False, bollen_stine=False)
     assert boot.fit.n_obs == 296
     assert "(5 of 301 rows with missing answers left out" in bootstrap_report(boot).lines[0]
+
+
+def test_ordinal_models_are_compared_on_every_answer_as_fit_uses_them():
+    # fit uses ordinal items' answers pairwise (every answer); compare must use the same rows and statistics
+    # (a new user's compare kept 200 of 900 rows), so each model's statistic equals fit's
+    import pandas as pd
+
+    data = pd.read_csv(DATA)
+    rng = np.random.default_rng(11)
+    for column in ("on_time", "clean", "helpful"):
+        data.loc[rng.random(len(data)) < 0.2, column] = np.nan
+    one = MODEL.parent / "rider_one_factor.cfa"
+    result = compare([one, MODEL], data, ordinal="all")
+    assert result.missing.value == "pairwise" and result.n_obs == len(data)
+    for path, fitted in zip((one, MODEL), result.results):
+        alone = cfa_tool.fit(path, data, ordinal="all")
+        assert fitted.fit.chi_square == pytest.approx(alone.fit.chi_square, rel=1e-8)
+    listwise = compare([one, MODEL], data, ordinal="all", missing="listwise")
+    assert listwise.n_obs == int(data.notna().all(axis=1).sum())
