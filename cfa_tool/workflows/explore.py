@@ -367,11 +367,15 @@ def _correlations(frame, names, source, ordinal_items, notes):
         from cfa_tool.data.polychoric import ordinal_moments
 
         continuous = frozenset(x for x in names if x not in ordinal_items)
-        moments = ordinal_moments(frame, names, source, continuous)
+        moments = ordinal_moments(frame, names, source, continuous, pairwise=True)
+        if moments.gaps:
+            counts = moments.pair_counts[np.tril_indices(len(names), -1)]
+            notes.append(f"Rows with gaps are kept: each polychoric correlation comes from the rows that answered both "
+                         f"items ({int(counts.min())} to {int(counts.max())} rows per pair), as fit computes them; N is "
+                         f"the {moments.n_obs} rows with at least one answer.")
         left = len(frame) - moments.n_obs
         if left:
-            notes.append(f"{left} rows with gaps on the items were left out (explore computes the polychoric correlations "
-                         f"from the complete rows).")
+            notes.append(f"{left} rows answered none of the items and were left out.")
         return from_ordinal_moments(moments)
     values = _numeric_rows(frame, names, source)
     gaps = int(np.isnan(values).any(axis=1).sum())

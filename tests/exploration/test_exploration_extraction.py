@@ -109,3 +109,19 @@ def test_ordinal_items_end_to_end():
     assert found.errors.unavailable is None and not found.errors.normal_theory
     spec = parse_model(found.draft.text)
     assert {name.text for name in spec.ordinal} == set(spec.observed_names)
+
+
+def test_ordinal_items_with_gaps_keep_every_answer_as_fit_does():
+    # explore computed polychoric correlations from complete rows only (89 of 450 rows in a new user's half);
+    # it now uses each pair's rows, as fit does: the same correlations as fit's sample correlations
+    import cfa_tool
+
+    frame = simulate_cfa(L0, np.array([[1, .3], [.3, 1]]), np.eye(8) * 0.5, n=500, seed=6)
+    ordinal = pd.DataFrame({c: np.digitize(frame[c], [-0.8, 0.0, 0.7]) + 1.0 for c in frame.columns})
+    rng = np.random.default_rng(2)
+    ordinal = ordinal.mask(rng.random(ordinal.shape) < 0.1)
+    found = cfa_tool.explore(ordinal, factors=2, ordinal="all", replications=5)
+    assert found.exploration.data.n_obs == int(ordinal.notna().any(axis=1).sum())
+    model = "factor f: " + ", ".join(ordinal.columns) + "\n"
+    fitted = cfa_tool.fit(model, ordinal, ordinal="all")
+    assert np.allclose(found.exploration.data.correlations, fitted.groups[0].sample_covariance, atol=1e-10)
