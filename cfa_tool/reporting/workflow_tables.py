@@ -393,7 +393,7 @@ def bootstrap_report(boot) -> Report:
                    values=(["Kind", "Variables", "Scale", "Estimate", "Bootstrap SE", "Percentile lower",
                             "Percentile upper", *([] if ordinal else ["BCa lower", "BCa upper"])], values))
     return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines), (table,),
-                  (), (HIGH_STAKES_NOTE,))
+                  tuple(result.warnings), (HIGH_STAKES_NOTE,))
 
 
 # ---------------------------------------------------------------- cutoffs
@@ -436,7 +436,7 @@ def cutoffs_report(cut) -> Report:
             lines += (f"That adjusted test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
                       f"{cut.converged_correct} samples drawn from it (nominal 5%).",)
     return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", _fit_notice(result), lines,
-                  (table,), tuple(notes), ("These cutoffs hold for this model, sample size and kind of misspecification "
+                  (table,), tuple(notes) + tuple(result.warnings), ("These cutoffs hold for this model, sample size and kind of misspecification "
                                            "only; they are guides, not laws.", HIGH_STAKES_NOTE))
 
 

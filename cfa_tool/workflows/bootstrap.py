@@ -22,7 +22,7 @@ Bollen-Stine transformation uses the weighted means and covariance.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 import numpy as np
@@ -382,6 +382,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     else:
         moments = sample_moments(frame, spec.observed_names, source)
     result = converged(fit_moments(spec, moments, options))
+    result = replace(result, warnings=tuple(notes) + result.warnings)  # what reading and the row filters did
     if design is not None:
         result = with_design(result, design_summary(frame, design, [moments]))
     order = [moments.names.index(n) for n in result.observed]

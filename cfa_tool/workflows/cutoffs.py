@@ -16,7 +16,7 @@ for that misspecification only.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import partial
 from pathlib import Path
 
@@ -283,4 +283,5 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
         return fit_cutoffs(spec, result, replications, seed, workers, scheduler, progress)
     refits_complete_rows(frame, spec.observed_names, missing, "cutoffs")
     result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
+    result = replace(result, warnings=tuple(notes) + result.warnings)  # what reading and the row filters did
     return fit_cutoffs(spec, result, replications, seed, workers, scheduler, progress)

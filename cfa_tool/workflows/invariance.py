@@ -19,7 +19,7 @@ import pandas as pd
 
 from cfa_tool.pipeline.inputs import (check_ordinal_options, choose_missing_handling, design_test, make_options,
                                       moments_for, ordinal_estimator_option,
-                                      ordinal_groups, ordinal_items_of, read_inputs, with_design)
+                                      ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design)
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, OptionError
@@ -226,7 +226,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     alpha = check.probability("alpha (the level of the difference tests)", 0.05 if alpha is None else alpha)
     fit_options = replace(make_options(options), diagnostics=False)
     design = design_columns(weights, cluster, strata, weight_kind)
-    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
+    spec, loaded, read_notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    frame, source = loaded.frame, loaded.source
     if spec.invariant:
         raise OptionError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "
                           "'equal across groups' statements from the model file")
@@ -243,13 +244,14 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                               "cannot be compared across steps; judge the steps by the difference tests "
                               "(--decide-by difference-test)")
         groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise, design)
+        notes = list(read_notes) + list(notes)
         ladder = OrdinalLadder(ordinal_estimator,
                                design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
     else:
         # rows with gaps are kept (full-information ML), as 'fit' keeps them, unless listwise is asked for
         fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
         groups, notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design=design)
-        notes = list(missing_notes) + list(notes)
+        notes = list(missing_notes) + list(read_notes) + list(notes)
         ladder = NormalLadder(design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
     labels = tuple(label for label, _ in groups)
     threads = blas_threads_for(len(spec.observed_names))  # the fits' matrices are small: one BLAS thread (numerics.threads)

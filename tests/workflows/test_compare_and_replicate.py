@@ -238,3 +238,21 @@ def test_ordinal_models_are_compared_on_every_answer_as_fit_uses_them():
         assert fitted.fit.chi_square == pytest.approx(alone.fit.chi_square, rel=1e-8)
     listwise = compare([one, MODEL], data, ordinal="all", missing="listwise")
     assert listwise.n_obs == int(data.notna().all(axis=1).sum())
+
+
+def test_every_command_with_row_filters_says_so(hs_data):
+    # a hostile trial found compare, invariance, bootstrap and cutoffs silent about the filter that chose their rows
+    from cfa_tool.reporting.reports import report_of
+    from cfa_tool.workflows.invariance import invariance
+
+    keep = ["ageyr >= 12"]
+    kept = int((hs_data.ageyr >= 12).sum())
+    said = f"row filter 'ageyr >= 12' kept {kept} of {len(hs_data)} rows"
+    results = [compare([ONE_FACTOR, THREE_FACTORS], hs_data, keep=keep),
+               invariance(THREE_FACTORS, hs_data, "school", keep=keep),
+               cfa_tool.bootstrap(THREE_FACTORS, hs_data, replications=20, bca=False, bollen_stine=False, keep=keep),
+               cfa_tool.cutoffs(THREE_FACTORS, hs_data, replications=20, keep=keep)]
+    for result in results:
+        report = report_of(result)
+        text = " ".join([*report.lines, *report.notes, *(report.notice.lines if report.notice else ())])
+        assert said in text, type(result).__name__
