@@ -171,9 +171,16 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
         if zero.all():
             raise DataError(f"{source}: every weight in column '{printable(columns.weights)}' is zero, so no row counts")
         if zero.any():
+            before = frame
             frame = frame.loc[~zero]
             notes.append(f"{int(zero.sum())} rows have weight 0 in '{columns.weights}' and were left out")
             rows = rows[~zero]
+            if group is not None and group in frame.columns:
+                gone = sorted(set(before[group].dropna().astype(str)) - set(frame[group].dropna().astype(str)))
+                if gone:
+                    notes.insert(0, f"every row of group{'s' if len(gone) > 1 else ''} "
+                                    f"{', '.join(repr(g) for g in gone)} of '{group}' has weight 0, so "
+                                    f"{'they are' if len(gone) > 1 else 'it is'} not in the analysis")
     for what, name in (("cluster", columns.cluster), ("stratum", columns.strata)):
         if name is not None:
             absent = frame[name].isna().to_numpy()

@@ -376,7 +376,8 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     refits_complete_rows(frame, spec.observed_names, missing, "bootstrap")
     options = FitOptions()
     if design is not None:
-        frame, _ = check_design(frame, design, spec.observed_names, None, source)
+        frame, design_notes = check_design(frame, design, spec.observed_names, None, source)
+        notes = list(notes) + design_notes
         options = design_test(options, design)
         [(_, moments)], _ = moments_for(spec, frame, source, design=design)
     else:

@@ -129,14 +129,14 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         complete = frame.loc[np.logical_and.reduce(answers)]
     else:
         complete = frame.dropna(subset=used)
+    dropped = len(loaded.frame) - len(complete)  # rows with missing answers (or none) or without a group
     if design is not None:
-        used_columns = set(used)
-        complete, _ = check_design(complete, design, tuple(used_columns), group, source)
-    dropped = len(loaded.frame) - len(complete)
+        complete, design_notes = check_design(complete, design, tuple(used), group, source)
+        notes = list(notes) + design_notes
     if ordinal_items:
         return _compare_ordinal(specs, names, complete, source, group, reference_group,
                                 replace(fit_options, missing=None if pairwise else MissingData.LISTWISE), ordinal_items,
-                                ordinal_estimator, dropped, design, pairwise)
+                                ordinal_estimator, dropped, design, pairwise, notes)
     results = []
     data_groups = []
     for spec, name in zip(specs, names):
@@ -152,7 +152,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
 
 
 def _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items, method,
-                     dropped, design=None, pairwise: bool = False) -> Comparison:
+                     dropped, design=None, pairwise: bool = False, notes=()) -> Comparison:
     from cfa_tool.workflows.ordinal_compare import fit_ordinal_models, ordinal_difference_test
 
     estimations, results = fit_ordinal_models(specs, complete, source, group, reference_group, fit_options,
@@ -163,7 +163,7 @@ def _compare_ordinal(specs, names, complete, source, group, reference_group, fit
 
     tests, not_nested = _each_pair(names, results, test_pair, specs, likelihood=False)
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
-                      MissingData.PAIRWISE if pairwise else MissingData.LISTWISE)
+                      MissingData.PAIRWISE if pairwise else MissingData.LISTWISE, tuple(notes))
 
 
 def _compare_summary(specs, names, path, fit_options, group) -> Comparison:

@@ -234,7 +234,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     ordinal_items = ordinal_items_of(spec, ordinal)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None:
-        frame, _ = check_design(frame, design, spec.observed_names, group, source)
+        frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
+        read_notes = list(read_notes) + design_notes
         if not ordinal_items:  # ordinal items always get sandwich errors and adjusted tests
             fit_options = design_test(fit_options, design)
     if ordinal_items:

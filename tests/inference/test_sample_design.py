@@ -402,3 +402,21 @@ def test_designs_beyond_what_can_be_computed_are_one_line_errors(hs_data, column
     options = {"cluster": column} if column == "clu" else {"weights": column, "weight_kind": kind}
     with pytest.raises(DataError, match=words.replace("(", r"\(").replace(")", r"\)")):
         cfa_tool.fit(THREE_FACTORS, data, **options)
+
+
+def test_rows_and_groups_of_weight_zero_are_said_in_every_command(hs_data):
+    # a hostile trial: compare called zero-weight rows 'rows with a missing answer', and invariance dropped a
+    # whole group of weight 0 without a word
+    from cfa_tool.reporting.reports import report_of
+    from cfa_tool.workflows.compare import compare
+    from cfa_tool.workflows.invariance import invariance
+
+    k = np.arange(len(hs_data))
+    data = hs_data.assign(w=np.where(k < 3, 0.0, 1.0 + (k % 3)))
+    compared = compare(["factor f: x1..x9\n", THREE_FACTORS], data, weights="w")
+    assert compared.rows_dropped == 0 and compared.n_obs == len(data) - 3
+    assert any("3 rows have weight 0" in n for n in compared.notes)
+    third = data.assign(grp=np.where(k % 3 == 0, "c", np.where(k % 3 == 1, "a", "b")), w=np.where(k % 3 == 0, 0.0, 1.0))
+    result = invariance(THREE_FACTORS, third, "grp", weights="w")
+    assert result.groups == ("a", "b")
+    assert any("every row of group 'c' of 'grp' has weight 0" in line for line in report_of(result).notice.lines)
