@@ -47,6 +47,8 @@ class ProblemKind(enum.Enum):
     EMPIRICALLY_UNDERIDENTIFIED = ("empirically under-identified", "barely determined by the data", True)
     # not of the solution but of its standard errors: a sampling design with too few clusters
     FEW_CLUSTERS = ("too few clusters", "too few clusters", False)
+    # sampling weights so uneven that the rows count as few (Kish's effective sample size)
+    SMALL_EFFECTIVE_SAMPLE = ("small effective sample", "small effective sample", False)
 
 
 @dataclass(frozen=True)
@@ -84,6 +86,7 @@ class Problem:
             K.ON_BOUND: f"{', '.join(self.parameters)} held at a bound",
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
+            K.SMALL_EFFECTIVE_SAMPLE: f"an effective sample size of only {v} under the weights",
         }[self.kind]
         return text + (f" in group {self.group}" if self.group is not None else "")
 

@@ -118,6 +118,17 @@ class SampleDesign:
             parts.append(f"strata ({c.strata}; {self.strata})")
         return "design: " + ", ".join(parts)
 
+    def weight_caution(self, free_parameters: int) -> str | None:
+        """Why estimates and tests are in doubt when the weights are so uneven that Kish's effective sample size
+        (Kish 1965) is small for the free parameters (None otherwise)."""
+        if (self.columns.weights is None or self.columns.kind is not WeightKind.SAMPLING or self.effective_n is None
+                or self.effective_n >= ROWS_PER_PARAMETER * free_parameters):
+            return None
+        return (f"The weights in '{self.columns.weights}' are so uneven that the {self.rows} rows count as about "
+                f"{self.effective_n:.1f} (Kish's effective sample size) for {free_parameters} free parameters, fewer "
+                f"than {ROWS_PER_PARAMETER} per parameter (common practice): the estimates rest on a few heavily weighted "
+                f"rows, and the sandwich standard errors and scaled test mean little.")
+
     def caution(self, free_parameters: int) -> str | None:
         """Why cluster-robust standard errors are in doubt with this few clusters (None with enough of them): too
         optimistic below about 30-50 clusters (common practice), and singular with no more clusters than free
@@ -130,6 +141,11 @@ class SampleDesign:
                     f"the estimates is singular, so its standard errors and scaled test mean little.")
         return (f"{where}: cluster-robust standard errors and tests are too optimistic with fewer than about 30-50 "
                 f"clusters (common practice).")
+
+
+#: fewer effective rows per free parameter than this under sampling weights: a caution (at least 5 cases per
+#: free parameter, Bentler & Chou 1987; common practice, a rule of thumb)
+ROWS_PER_PARAMETER = 5
 
 
 def design_columns(weights: str | None = None, cluster: str | None = None, strata: str | None = None,

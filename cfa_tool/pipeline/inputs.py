@@ -362,6 +362,13 @@ def with_design(result: FitResult, design) -> FitResult:
         problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), caution,
                              "read the p-values with caution, or fit without --cluster and say that rows are nested in "
                              "clusters."),)
+    uneven = design.weight_caution(len(result.parameter_labels))
+    if uneven:
+        from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+        problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,
+                             "check the weights (a few rows may carry most of them), trim extreme weights by the survey's "
+                             "rules, or report the unweighted fit beside the weighted one."),)
     fit = result.fit
     if fit is not None and design.columns.weights is not None and design.columns.kind is WeightKind.SAMPLING:
         # a weighted log-likelihood is a pseudo-likelihood: information criteria built on it would mislead

@@ -420,3 +420,19 @@ def test_rows_and_groups_of_weight_zero_are_said_in_every_command(hs_data):
     result = invariance(THREE_FACTORS, third, "grp", weights="w")
     assert result.groups == ("a", "b")
     assert any("every row of group 'c' of 'grp' has weight 0" in line for line in report_of(result).notice.lines)
+
+
+def test_very_uneven_weights_bring_a_caution_first(hs_data):
+    # Kish's effective sample size n_eff = (sum w)^2 / sum w^2 (Kish 1965): ten rows weighing 200 and the rest 1
+    # leave about 13 effective rows for 21 free parameters, fewer than 5 per parameter (common practice)
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    w = np.ones(len(hs_data))
+    w[:10] = 200.0
+    result = cfa_tool.fit(THREE_FACTORS, hs_data.assign(w=w), weights="w")
+    n_eff = w.sum() ** 2 / (w @ w)
+    (problem,) = [p for p in result.problems if p.kind is ProblemKind.SMALL_EFFECTIVE_SAMPLE]
+    assert problem.value == pytest.approx(round(n_eff, 1))
+    assert not problem.kind.inadmissible  # a caution, not an impossible solution
+    even = cfa_tool.fit(THREE_FACTORS, hs_data.assign(w=1.0 + np.arange(len(hs_data)) % 3), weights="w")
+    assert not any(p.kind is ProblemKind.SMALL_EFFECTIVE_SAMPLE for p in even.problems)
