@@ -729,6 +729,9 @@ def normality_lines(result, options: bool = False) -> list[str]:
                 f"(normal: {n.kurtosis_expected:g}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}.")
         if (n.skewness_p_value < 0.05 or n.kurtosis_p_value < 0.05) and result.robust is None:
             line += f" The data depart from normality: consider {Remedy.ROBUST.said(options)}."
+        design = getattr(result, "design", None)
+        if design is not None and design.columns.weights is not None:
+            line += " These tests describe the rows as they are, unweighted."
         lines.append(line)
     if not lines and result.method.full_information and not result.method.ordinal:
         # said, not silently left out: both need every row complete

@@ -436,3 +436,12 @@ def test_very_uneven_weights_bring_a_caution_first(hs_data):
     assert not problem.kind.inadmissible  # a caution, not an impossible solution
     even = cfa_tool.fit(THREE_FACTORS, hs_data.assign(w=1.0 + np.arange(len(hs_data)) % 3), weights="w")
     assert not any(p.kind is ProblemKind.SMALL_EFFECTIVE_SAMPLE for p in even.problems)
+
+
+def test_mardia_under_weights_says_it_is_unweighted(hs_data):
+    # Mardia's tests are computed from the rows as they are; under sampling weights the report must say so
+    from cfa_tool.reporting.tables import normality_lines
+
+    weighted = cfa_tool.fit(THREE_FACTORS, hs_data.assign(w=1.0 + np.arange(len(hs_data)) % 3), weights="w")
+    assert all(line.endswith("describe the rows as they are, unweighted.") for line in normality_lines(weighted))
+    assert not any("unweighted" in line for line in normality_lines(cfa_tool.fit(THREE_FACTORS, hs_data)))
