@@ -47,6 +47,8 @@ class ProblemKind(enum.Enum):
     EMPIRICALLY_UNDERIDENTIFIED = ("empirically under-identified", "barely determined by the data", True)
     # not of the solution but of its standard errors: a sampling design with too few clusters
     FEW_CLUSTERS = ("too few clusters", "too few clusters", False)
+    # not of the solution but of the data: values in item columns that look like no answers (data.odd_values)
+    VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
 
 
 @dataclass(frozen=True)
@@ -84,6 +86,7 @@ class Problem:
             K.ON_BOUND: f"{', '.join(self.parameters)} held at a bound",
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
+            K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
         }[self.kind]
         return text + (f" in group {self.group}" if self.group is not None else "")
 

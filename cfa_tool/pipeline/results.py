@@ -74,6 +74,13 @@ class CheckResult(Presentable):
     coverage: dict  # share of rows answering each model variable
     groups: tuple[str, ...] | None
     ordinal: bool = False  # ordinal items: rows with gaps are used through pairwise present rows
+    #: values in the item columns that look like no answers (assessment.admissibility.Problem): first in every view
+    problems: tuple = ()
+    without_group: int = 0  # rows without a group label (left out)
+
+    @property
+    def admissible(self) -> bool:
+        return True  # nothing was fitted: its problems are cautions about the data
 
     def summary(self) -> str:
         spec = self.spec
@@ -81,7 +88,9 @@ class CheckResult(Presentable):
                  f"{len(spec.observed_names)} indicators, all found in {self.source}."]
         if self.groups:
             lines.append(f"Groups: {len(self.groups)} ({', '.join(self.groups)}).")
-        lines.append(f"Rows: {self.rows} read, {self.complete} complete, {self.with_gaps} with missing answers "
+        read = (f"{self.rows + self.without_group} read, {self.without_group} without a group label (left out), "
+                f"{self.rows} with one:" if self.without_group else f"{self.rows} read,")
+        lines.append(f"Rows: {read} {self.complete} complete, {self.with_gaps} with missing answers "
                      f"({'used through pairwise present rows for ordinal items' if self.ordinal else 'used by full-information ML'}, "
                      f"the default), {self.empty} with no answer to any model variable.")
         low = sorted((v, k) for k, v in self.coverage.items() if v < 1)
@@ -95,7 +104,8 @@ class CheckResult(Presentable):
         return {"valid": True, "source": self.source, "factors": list(self.spec.factor_names),
                 "indicators": list(self.spec.observed_names), "rows": self.rows, "complete_rows": self.complete,
                 "rows_with_gaps": self.with_gaps, "rows_without_answers": self.empty, "coverage": dict(self.coverage),
-                "groups": list(self.groups) if self.groups else None}
+                "groups": list(self.groups) if self.groups else None,
+                "rows_without_group": self.without_group, "problems": [p.to_dict() for p in self.problems]}
 
 
 @dataclass(frozen=True)

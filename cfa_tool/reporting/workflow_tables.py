@@ -491,7 +491,10 @@ def check_report(found) -> Report:
     rows = [[name, "100%" if share >= 1 else _percent_below_all(share)] for name, share in found.coverage.items()]
     table = _table("coverage", "Share of rows answering each model variable", [("Variable", "l"), ("Answered", "r")],
                    rows, values=(["Variable", "Share answering"], [[k, v] for k, v in found.coverage.items()]))
-    return Report(ResultKind.CHECK, "Model check", None, tuple(lines), (table,))
+    notice = T.problem_notice(found)
+    if notice is not None:
+        notice = ProblemNotice(T.DATA_CAUTION, notice.lines, False)
+    return Report(ResultKind.CHECK, "Model check", notice, tuple(lines), (table,))
 
 
 BUILDERS = {ResultKind.COMPARE: comparison_report, ResultKind.INVARIANCE: invariance_report,
