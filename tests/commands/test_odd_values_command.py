@@ -81,3 +81,14 @@ def test_rows_without_a_group_label_are_counted_as_read(tmp_path, capsys):
     assert "values that look like no answers" not in text  # the totals row has no group label: it is not analysed
     code, out, _ = _run(["check", MODEL, "--data", data, "--group-column", "district"], capsys)
     assert f"{rows + 1} read, 1 without a group label (left out), {rows} with one" in " ".join(out.split())
+
+
+def test_compare_and_scores_caution_first(tmp_path, capsys):
+    data = _with_code(tmp_path)
+    one = ROOT / "models" / "rider_one_factor.cfa"
+    code, out, _ = _run(["compare", one, MODEL, "--data", data], capsys)
+    out = " ".join(out.replace("│", " ").split())
+    assert code == 0 and out.index("holds the value -99") < out.index("Model comparison") < out.index("Fit of each model")
+    code, out, _ = _run(["scores", MODEL, "--data", data, "--output", tmp_path / "scores.csv"], capsys)
+    out = " ".join(out.replace("│", " ").split())
+    assert code == 0 and out.index("holds the value -99") < out.index("Factor scores:")
