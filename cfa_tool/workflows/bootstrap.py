@@ -36,8 +36,8 @@ from cfa_tool.language.spec import Spec
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.method import WeightKind
-from cfa_tool.pipeline.inputs import (continuous_only, converged, design_test, moments_for, read_inputs,
-                                      with_design, without_exploratory_blocks)
+from cfa_tool.pipeline.inputs import (continuous_only, converged, design_test, moments_for, odd_values_named,
+                                      read_inputs_with_notes, with_design, with_odd_values, without_exploratory_blocks)
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.parallel import run_tasks
@@ -285,7 +285,8 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights the fit and every resample, and the
     resamples draw whole clusters within strata."""
     replications, seed = bootstrap_options(replications, seed, workers)
-    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
+    spec, loaded, _ = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    frame, source = loaded.frame, loaded.source
     continuous_only(spec, "bootstrap")
     without_exploratory_blocks(spec, "bootstrap", "it resamples the parameters, and a block's rotated loadings are "
                                                   "not among them")
@@ -297,9 +298,11 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
         [(_, moments)], _ = moments_for(spec, frame, source, design=design)
     else:
         moments = sample_moments(frame, spec.observed_names, source)
-    result = converged(fit_moments(spec, moments, options))
+    with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
+        result = converged(fit_moments(spec, moments, options))
     if design is not None:
         result = with_design(result, design_summary(frame, design, [moments]))
+    result = with_odd_values(result, loaded)
     order = [moments.names.index(n) for n in result.observed]
     return bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, scheduler,
                          progress, moments.design)

@@ -26,7 +26,8 @@ from cfa_tool import options as check
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import OptionError
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fit
-from cfa_tool.pipeline.inputs import continuous_only, converged, read_inputs
+from cfa_tool.pipeline.inputs import (continuous_only, converged, odd_values_named, read_inputs_with_notes,
+                                      with_odd_values)
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
@@ -221,7 +222,9 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     """Fit the model, then simulate model-specific fit-index cutoffs: the result holds the fit (``.fit``) and the
     cutoffs."""
     replications, seed = cutoff_options(replications, seed, workers)
-    spec, frame, source = read_inputs(model, data, sheet, missing_codes, keep)
+    spec, loaded, _ = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
+    frame, source = loaded.frame, loaded.source
     continuous_only(spec, "cutoffs")
-    result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
-    return fit_cutoffs(spec, result, replications, seed, workers, scheduler, progress)
+    with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
+        result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
+    return fit_cutoffs(spec, with_odd_values(result, loaded), replications, seed, workers, scheduler, progress)

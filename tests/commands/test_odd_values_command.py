@@ -6,8 +6,8 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
-import numpy as np
 import pandas as pd
+import pytest
 
 from cfa_tool.cli import main
 
@@ -92,3 +92,16 @@ def test_compare_and_scores_caution_first(tmp_path, capsys):
     code, out, _ = _run(["scores", MODEL, "--data", data, "--output", tmp_path / "scores.csv"], capsys)
     out = " ".join(out.replace("│", " ").split())
     assert code == 0 and out.index("holds the value -99") < out.index("Factor scores:")
+
+
+@pytest.mark.parametrize("command, title", [
+    (["bootstrap", "--replications", "20", "--seed", "1"], "Bootstrap of"),
+    (["cutoffs", "--replications", "20", "--seed", "1"], "Model-specific fit cutoffs"),
+    (["invariance", "--group-column", "district"], "Measurement invariance across"),
+    (["align", "--group-column", "district"], "Alignment across"),
+], ids=["bootstrap", "cutoffs", "invariance", "align"])
+def test_every_command_that_reads_the_data_cautions_first(command, title, tmp_path, capsys):
+    data = _with_code(tmp_path)
+    code, out, _ = _run([command[0], MODEL, "--data", data, *command[1:]], capsys)
+    out = " ".join(out.replace("│", " ").split())
+    assert code == 0 and out.index("The item column clean of coded.csv holds the value -99") < out.index(title)
