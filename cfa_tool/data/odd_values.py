@@ -98,25 +98,32 @@ class OddValues:
 def odd_values(frame: pd.DataFrame, columns: tuple[str, ...] | list[str],
                row_numbers: np.ndarray | None = None) -> tuple[OddValues, ...]:
     """What in ``columns`` of ``frame`` looks like no answers (see the module's rules), codes first."""
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # values near the float limit judge as inf
+        return _odd_values(frame, columns, row_numbers)
+
+
+def _odd_values(frame: pd.DataFrame, columns, row_numbers) -> tuple[OddValues, ...]:
     numbers = np.arange(1, len(frame) + 1) if row_numbers is None else np.asarray(row_numbers)
-    names = [c for c in columns if c in frame.columns and pd.api.types.is_numeric_dtype(frame[c])]
+    names = [c for c in columns if c in frame.columns and pd.api.types.is_numeric_dtype(frame[c])
+             and not pd.api.types.is_complex_dtype(frame[c])]  # other columns are refused where they are read
     if not names or len(frame) <= MIN_OTHERS:
         return ()
-    X = np.column_stack([pd.to_numeric(frame[c], errors="coerce").to_numpy(dtype=float) for c in names])
-    X[~np.isfinite(X)] = np.nan
+    X = frame[names].to_numpy(dtype=float, na_value=np.nan)  # infinite values are judged by no rule
+    flagged = [(j, value, code, ranges) for j in range(X.shape[1]) for value, code, ranges in _peeled(X[:, j])]
+    if not flagged:  # the common case: only the rows-of-sums-or-means rule to apply
+        return tuple(_row_findings(X, X, X, np.zeros(X.shape, dtype=bool), _summary_rows(X, X), names, numbers))
     codes: dict[float, list[int]] = {}  # code -> columns
     code_cells = np.zeros(X.shape, dtype=bool)
     far = np.zeros(X.shape, dtype=bool)
     alone = np.zeros(X.shape, dtype=bool)
-    for j in range(X.shape[1]):
-        for value, code, ranges in _peeled(X[:, j]):
-            cells = X[:, j] == value
-            if code:
-                codes.setdefault(value, []).append(j)
-                code_cells[:, j] |= cells
-            else:
-                far[:, j] |= cells
-                alone[:, j] |= cells & (ranges > FAR_ALONE)
+    for j, value, code, ranges in flagged:
+        cells = X[:, j] == value
+        if code:
+            codes.setdefault(value, []).append(j)
+            code_cells[:, j] |= cells
+        else:
+            far[:, j] |= cells
+            alone[:, j] |= cells & (ranges > FAR_ALONE)
     answered = np.isfinite(X).sum(axis=1) - code_cells.sum(axis=1)
     counted = far.sum(axis=1)
     far &= ((counted >= 2) & (2 * counted >= answered) | alone.any(axis=1))[:, None]
@@ -125,24 +132,29 @@ def odd_values(frame: pd.DataFrame, columns: tuple[str, ...] | list[str],
         cells = X[:, js] == value
         rows = np.flatnonzero(cells.any(axis=1))
         found.append(OddValues(OddKind.MISSING_CODE, tuple(names[j] for j in js), (float(value),) * len(js),
-                               tuple(int(numbers[r]) for r in rows), int(cells.sum()), _others(X[:, js], cells)))
+                               tuple(int(numbers[r]) for r in rows), int(cells.sum()), _others(X[:, js][~cells])))
     clean = np.where(code_cells, np.nan, X)
-    summary = _summary_rows(clean, np.where(far, np.nan, clean))
+    base = np.where(far, np.nan, clean)
+    return tuple(found) + tuple(_row_findings(X, clean, base, far, _summary_rows(clean, base), names, numbers))
+
+
+def _row_findings(X: np.ndarray, clean: np.ndarray, base: np.ndarray, far: np.ndarray, summary: dict[int, OddKind],
+                  names: list[str], numbers: np.ndarray) -> list[OddValues]:
+    """One finding per row far beyond the others or of sums or means (``clean``: ``X`` without codes; ``base``:
+    without the values far beyond either)."""
+    found = []
     for r in sorted(set(np.flatnonzero(far.any(axis=1))) | set(summary)):
         kind = summary.get(r, OddKind.FAR_BEYOND)
         js = np.flatnonzero(far[r]) if kind is OddKind.FAR_BEYOND else np.flatnonzero(np.isfinite(clean[r]))
-        cells = np.zeros(X.shape, dtype=bool)
-        cells[r, js] = True
         found.append(OddValues(kind, tuple(names[j] for j in js), tuple(float(clean[r, j]) for j in js),
-                               (int(numbers[r]),), len(js), _others(np.where(far | code_cells, np.nan, X)[:, js],
-                                                                    cells[:, js])))
-    return tuple(found)
+                               (int(numbers[r]),), len(js), _others(np.delete(base[:, js], r, axis=0))))
+    return found
 
 
 def code_like(value: float) -> bool:
     """A whole number that is negative or written with nines only (9, 99, 999, -9, -99, ...): the values data
     collection programs commonly use for 'no answer'."""
-    if not np.isfinite(value) or value != np.floor(value):
+    if not np.isfinite(value) or value != np.floor(value) or abs(value) >= 1e9:  # codes have a few digits
         return False
     digits = str(int(abs(value)))
     return value < 0 or set(digits) == {"9"}
@@ -183,29 +195,37 @@ def _peeled(x: np.ndarray) -> list[tuple[float, bool, float]]:
 def _summary_rows(X: np.ndarray, base: np.ndarray) -> dict[int, OddKind]:
     """Rows of ``X`` whose answers equal the sums or the means of the other rows' answers in ``base`` (``X`` without
     the values far beyond) in every item column they answer (three or more), with a value no other row gives in
-    its column."""
-    answered = np.isfinite(X)
+    its column.  Column by column on the rows still in question, so that large files cost little."""
     in_base = np.isfinite(base)
-    own = np.where(in_base, base, 0.0)
-    Z = np.where(answered, X, 0.0)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        sums = np.nansum(base, axis=0) - own
-        means = sums / (in_base.sum(axis=0) - in_base)
-    width = answered.sum(axis=1)
+    totals = np.where(in_base, base, 0.0).sum(axis=0)
+    counts = in_base.sum(axis=0)
+    rows = np.flatnonzero(np.isfinite(X).sum(axis=1) >= 3)
+    as_sum = np.ones(len(rows), dtype=bool)
+    as_mean = np.ones(len(rows), dtype=bool)
+    for j in range(X.shape[1]):
+        x = X[rows, j]
+        answered = np.isfinite(x)
+        own = in_base[rows, j]
+        others = totals[j] - np.where(own, base[rows, j], 0.0)  # the other rows' sum
+        with np.errstate(invalid="ignore", divide="ignore"):
+            mean = others / (counts[j] - own)
+        as_sum &= ~answered | (np.abs(x - others) <= SUM_TOLERANCE + 1e-9)
+        as_mean &= ~answered | (np.abs(x - mean) <= MEAN_TOLERANCE + 1e-9)
+        keep = as_sum | as_mean
+        rows, as_sum, as_mean = rows[keep], as_sum[keep], as_mean[keep]
+        if not len(rows):
+            return {}
     out: dict[int, OddKind] = {}
-    for kind, target, tolerance in ((OddKind.SUMS_ROW, sums, SUM_TOLERANCE), (OddKind.MEANS_ROW, means, MEAN_TOLERANCE)):
-        close = (np.abs(Z - target) <= tolerance + 1e-9) | ~answered
-        for r in np.flatnonzero(close.all(axis=1) & (width >= 3)):
-            if r in out:
-                continue
-            js = np.flatnonzero(answered[r])
-            if any((np.delete(X[:, j], r) != X[r, j]).all() for j in js):
-                out[int(r)] = kind
+    for r, summed in zip(rows, as_sum):
+        js = np.flatnonzero(np.isfinite(X[r]))
+        if any((np.delete(X[:, j], r) != X[r, j]).all() for j in js):
+            out[int(r)] = OddKind.SUMS_ROW if summed else OddKind.MEANS_ROW
     return out
 
 
-def _others(X: np.ndarray, cells: np.ndarray) -> tuple[float, float]:
-    rest = X[~cells & np.isfinite(X)]
+def _others(values: np.ndarray) -> tuple[float, float]:
+    """The lowest and highest of the answers ``values`` (gaps left out)."""
+    rest = values[np.isfinite(values)]
     return (float(rest.min()), float(rest.max())) if len(rest) else (float("nan"), float("nan"))
 
 
