@@ -49,6 +49,8 @@ class ProblemKind(enum.Enum):
     FEW_CLUSTERS = ("too few clusters", "too few clusters", False)
     # sampling weights so uneven that the rows count as few (Kish's effective sample size)
     SMALL_EFFECTIVE_SAMPLE = ("small effective sample", "small effective sample", False)
+    # not of the solution but of the data: values in item columns that look like no answers (data.odd_values)
+    VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
 
 
 @dataclass(frozen=True)
@@ -87,6 +89,7 @@ class Problem:
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
             K.SMALL_EFFECTIVE_SAMPLE: f"an effective sample size of only {v} under the weights",
+            K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
         }[self.kind]
         return text + (f" in group {self.group}" if self.group is not None else "")
 

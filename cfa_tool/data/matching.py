@@ -5,6 +5,7 @@ from __future__ import annotations
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import ModelError
 from cfa_tool.language.spec import Spec
+from cfa_tool.data.odd_values import code_like
 
 
 def check_columns(spec: Spec, columns: list[str], data_source: str) -> None:
@@ -46,9 +47,15 @@ def check_declared_ranges(spec: Spec, frame, data_source: str) -> None:
             if len(outside):
                 found = (f"the answer {outside.min():g}" if outside.min() == outside.max()
                          else f"answers from {outside.min():g} to {outside.max():g}")
+                codes = sorted(set(outside.tolist()))
+                advice = (f"if {' and '.join(f'{c:g}' for c in codes[:3])} "
+                          f"{'means' if len(codes) == 1 else 'mean'} 'no answer', give --missing-codes "
+                          f"{','.join(f'{c:g}' for c in codes[:3])}; otherwise give the scale's real lowest and highest "
+                          f"answers" if len(codes) <= 3 and all(code_like(c) for c in codes)
+                          else "give the scale's real lowest and highest answers")
                 raise ModelError(
                     f"'{name}' has {found} in {data_name}, outside the scale {keying.minimum:g} to {keying.maximum:g} "
-                    f"declared here; give the scale's real lowest and highest answers",
+                    f"declared here; {advice}",
                     name.location,
                     spec.source_line(name.location),
                 )

@@ -37,6 +37,8 @@ class LoadedData:
     read_frame: pd.DataFrame | None = None
     #: the row filters applied (as the user wrote them), in order
     row_filters: tuple[str, ...] = ()
+    #: values in the model's item columns that look like no answers (data.odd_values.OddValues), found on reading
+    odd_values: tuple = ()
 
 
 EXCEL_SUFFIXES = (".xlsx", ".xlsm")
@@ -122,11 +124,11 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
             raise DataError(f"{path} (sheet '{ws.title}'): column {position} of the header row has no name")
     _check_duplicates(header, f"{path} (sheet '{ws.title}')")
     width = len(header)
-    for number, r in enumerate(rows[1:], start=2):
+    for number, r in enumerate(rows[1:], start=first + 2):
         beyond = [k for k, v in enumerate(r[width:], start=width + 1) if v not in (None, "")]
         if beyond:
             raise DataError(f"{path} (sheet '{ws.title}'): row {number} has a value in column {beyond[0]}, which has "
-                            f"no name in the header row")
+                            f"no name in the header row ({_header_taken(f'row {first + 1}')})")
     body = [list(r[:width]) for r in rows[1:] if any(v is not None for v in r[:width])]
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
@@ -156,6 +158,12 @@ def _check_uncomputed_formulas(path: Path, title: str, first: int) -> None:
                 raise DataError(f"{path} (sheet '{printable(title)}'): cell {cell.coordinate} holds a formula whose value "
                                 f"was never calculated (the program that wrote the file does not calculate); open and save "
                                 f"the workbook in a spreadsheet program, or save the table as CSV")
+
+
+def _header_taken(where: str) -> str:
+    """Which row was read as the header, and what to do when a title stands above the real one."""
+    return (f"{where}, the first with values, was taken as the header; if the column names are in a later row, "
+            f"delete the rows above them")
 
 
 def _read_labelled(path: Path) -> LoadedData:
@@ -247,7 +255,7 @@ def _delimiter(text: str) -> str:
     return best
 
 
-def _check_field_counts(text: str, delimiter: str, named: int, width: int, path: Path) -> int:
+def _check_field_counts(text: str, delimiter: str, named: int, width: int, path: Path, header_line: int = 1) -> int:
     """Every data record must have a field for each of the ``named`` columns and no values beyond
     them.  Empty fields after them (a delimiter at the end of each line, as some programs write
     them; ``width`` fields in the header line) are accepted.  Returns the largest number of fields
@@ -262,13 +270,15 @@ def _check_field_counts(text: str, delimiter: str, named: int, width: int, path:
             continue
         if named < n <= width:
             column = next(k for k in range(named, n) if fields[k].strip()) + 1
-            raise DataError(f"{path}: line {line} has a value in column {column}, which has no name in the header")
+            raise DataError(f"{path}: line {line} has a value in column {column}, which has no name in the header "
+                            f"({_header_taken(f'line {header_line}')})")
         others = [d for d in _DELIMITERS if d != delimiter and d in delimiter.join(fields)]
         hint = (f"; the line holds '{_shown_delimiter(others[0])}', while the header is separated by "
                 f"'{_shown_delimiter(delimiter)}'") if others and n == 1 else ""
         more = "more" if n > named else "fewer"
+        taken = f"; {_header_taken(f'line {header_line}')}" if n > named else ""
         raise DataError(f"{path}: line {line} has {n} fields but the header has {named} ({more} than the header{hint}); "
-                        f"every row needs one value (or an empty field) per column")
+                        f"every row needs one value (or an empty field) per column{taken}")
     return widest
 
 
@@ -303,7 +313,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         if not name and not (position == 1 and has_row_names):
             raise DataError(f"{path}: line {header_line}: column {position} of the header has no name")
     _check_duplicates(header, str(path))
-    widest = _check_field_counts(text, delimiter, len(header), len(header) + trailing, path)
+    widest = _check_field_counts(text, delimiter, len(header), len(header) + trailing, path, header_line)
     body_start = _offset_of_line(text, header_line)
     try:
         frame = pd.read_csv(

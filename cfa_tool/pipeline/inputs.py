@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+from contextlib import contextmanager
 from dataclasses import replace
 from functools import lru_cache
 from pathlib import Path
@@ -12,7 +13,8 @@ import pandas as pd
 
 from cfa_tool.data.groups import label_notes, split_moments
 from cfa_tool.data.matching import check_columns, check_declared_ranges
-from cfa_tool.data.moments import SampleMoments, missing_summary, sample_moments
+from cfa_tool.data.moments import SampleMoments, missing_summary, row_numbers, sample_moments
+from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
@@ -152,7 +154,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     check_columns(spec, columns, loaded.source)
     check_declared_ranges(spec, frame, loaded.source)
     return spec, replace(loaded, frame=frame, read_frame=loaded.frame if keep else None,
-                         row_filters=tuple(f.text for f in filters)), notes
+                         row_filters=tuple(f.text for f in filters),
+                         odd_values=odd_values(frame, spec.observed_names, row_numbers(frame))), notes
 
 
 def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,
@@ -270,10 +273,55 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                                                  (id_column,) if isinstance(id_column, str) else ())
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
-    result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
-                                   design), ids_by_row_number(ids, frame))
+    loaded = analysed_odd_values(loaded, spec, group)
+    with odd_values_named(loaded):
+        result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
+                                       ordinal_estimator, design), ids_by_row_number(ids, frame))
+    result = with_odd_values(result, loaded)
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
+
+
+def odd_value_problems(loaded: LoadedData) -> tuple:
+    """Values in the item columns that look like no answers (a missing-value code, a totals row), as cautions
+    that come first in every view (assessment.admissibility.Problem)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    return tuple(Problem(ProblemKind.VALUES_NOT_ANSWERS, (), None, odd.caution(loaded.source), odd.advice())
+                 for odd in loaded.odd_values)
+
+
+def with_odd_values(result, loaded: LoadedData):
+    """``result`` (anything with ``problems``) with the cautions of :func:`odd_value_problems` before its own:
+    the fit is not refused, since the user may know better."""
+    found = odd_value_problems(loaded)
+    return replace(result, problems=found + tuple(result.problems)) if found else result
+
+
+def analysed_odd_values(loaded: LoadedData, spec: Spec, group: str | None) -> LoadedData:
+    """``loaded`` with the values that look like no answers among the rows analysed: with groups, the rows with a
+    group label (a totals row without one is left out, and named in a note)."""
+    if group is None or not isinstance(group, str) or group not in loaded.frame.columns or not loaded.odd_values:
+        return loaded
+    analysed = _labelled(loaded.frame, group)
+    if len(analysed) == len(loaded.frame):
+        return loaded
+    return replace(loaded, odd_values=odd_values(analysed, spec.observed_names, row_numbers(analysed)))
+
+
+@contextmanager
+def odd_values_named(loaded: LoadedData):
+    """An estimation that fails on data holding values that look like no answers says so first: they are the
+    likelier cause than the iterations or the identification the failure's own advice names."""
+    try:
+        yield
+    except EstimationError as exc:
+        if not loaded.odd_values:
+            raise
+        first = loaded.odd_values[0]
+        more = f" (and {len(loaded.odd_values) - 1} more such findings)" if len(loaded.odd_values) > 1 else ""
+        raise EstimationError(f"{first.caution(loaded.source)}{more} What to try first: {first.advice()} "
+                              f"Then: {exc}") from None
 
 
 def named_cases(result: FitResult, ids: dict) -> FitResult:
@@ -291,6 +339,9 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
     """The fit of rows of raw data (after reading, filters and model checks), its data summary naming the
     row filters and the rows the file held before them."""
     result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
+    if group is not None and result.data.rows_read != len(loaded.frame):  # rows without a group label count as read
+        result = replace(result, data=replace(result.data, rows_read=len(loaded.frame),
+                                              rows_dropped=len(loaded.frame) - result.data.n_obs))
     if not loaded.row_filters:
         return result
     return replace(result, data=replace(result.data, row_filters=loaded.row_filters,
@@ -311,7 +362,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
             result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator,
                                   design)
         labels = tuple(g.label for g in result.groups) if group is not None else None
-        summary = missing_summary(frame, spec.observed_names)  # the patterns and coverage, as for continuous items
+        summary = missing_summary(_labelled(frame, group), spec.observed_names)  # as for continuous items
         gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
         return _described(replace(converged(result), warnings=tuple(notes) + result.warnings,
                                   missing_data=summary if gaps else None), spec, labels, ordinal_items)
@@ -325,9 +376,10 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     if design is not None:
         result = with_design(result, design_summary(frame, design, [m for _, m in groups]))
-    every_row_complete = (sum(m.n_obs for _, m in groups) == len(frame)
+    analysed = _labelled(frame, group)
+    every_row_complete = (sum(m.n_obs for _, m in groups) == len(analysed)
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
-    summary = None if every_row_complete else missing_summary(frame, spec.observed_names)
+    summary = None if every_row_complete else missing_summary(analysed, spec.observed_names)
     labels = {
         "variables": {k: v for k, v in loaded.variable_labels.items() if k in spec.observed_names},
         "values": {k: v for k, v in loaded.value_labels.items() if k in spec.observed_names},
@@ -337,6 +389,14 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                                                                       or not all(summary["coverage"].values())) else None,
                      labels=labels if labels["variables"] or labels["values"] else None)
     return _described(result, spec, tuple(label for label, _ in groups) if group is not None else None)
+
+
+def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
+    """The rows analysed: with groups, those with a group label (the others are left out, with a note)."""
+    if group is None or group not in frame.columns:
+        return frame
+    labelled = frame[group].notna().to_numpy()
+    return frame if labelled.all() else frame.loc[labelled]
 
 
 def design_test(fit_options, design: DesignColumns):
@@ -626,7 +686,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         check_counting_rule(spec, build_parameter_table(spec))
         return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0,
                            {name: 1.0 for name in spec.observed_names}, None)
-    spec, frame, source = read_inputs(model, data, **read_options)
+    spec, loaded, _ = read_inputs_with_notes(model, data, **read_options)
+    frame, source = loaded.frame, loaded.source
+    loaded = analysed_odd_values(loaded, spec, group)
     notes: list[str] = []
     if design is not None:
         frame, notes = check_design(frame, design, spec.observed_names, group, source)
@@ -645,13 +707,12 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)
     check_counting_rule(spec, table)
     sample_design = design_summary(frame, design, [m for _, m in groups]) if design is not None else None
-    answered = frame[list(spec.observed_names)].notna()
-    if group is not None:
-        answered = answered[frame[group].notna()]
+    answered = _labelled(frame, group)[list(spec.observed_names)].notna()
     complete = int(answered.all(axis=1).sum())
     empty = int((~answered.any(axis=1)).sum())
     coverage = {name: float(v) for name, v in answered.mean(axis=0).items()} if len(answered) else {}
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - empty, empty, coverage,
                        labels, bool(ordinal_items), sample_design,
-                       sample_design.caution(table.n_free) if sample_design is not None else None, tuple(notes))
+                       sample_design.caution(table.n_free) if sample_design is not None else None, tuple(notes),
+                       odd_value_problems(loaded), len(frame) - len(answered))
 

@@ -77,6 +77,13 @@ class CheckResult(Presentable):
     design: object = None  # the sampling design (data.sample_design.SampleDesign) when one is given
     caution: str | None = None  # too few clusters for cluster-robust standard errors (the fit's Problem)
     notes: tuple[str, ...] = ()  # rows the design leaves out (weight 0)
+    #: values in the item columns that look like no answers (assessment.admissibility.Problem): first in every view
+    problems: tuple = ()
+    without_group: int = 0  # rows without a group label (left out)
+
+    @property
+    def admissible(self) -> bool:
+        return True  # nothing was fitted: its problems are cautions about the data
 
     def summary(self) -> str:
         spec = self.spec
@@ -85,7 +92,9 @@ class CheckResult(Presentable):
                  f"{len(spec.observed_names)} indicators, all found in {self.source}."]
         if self.groups:
             lines.append(f"Groups: {len(self.groups)} ({', '.join(self.groups)}).")
-        lines.append(f"Rows: {self.rows} read, {self.complete} complete, {self.with_gaps} with missing answers "
+        read = (f"{self.rows + self.without_group} read, {self.without_group} without a group label (left out), "
+                f"{self.rows} with one:" if self.without_group else f"{self.rows} read,")
+        lines.append(f"Rows: {read} {self.complete} complete, {self.with_gaps} with missing answers "
                      f"({'used through pairwise present rows for ordinal items' if self.ordinal else 'used by full-information ML'}, "
                      f"the default), {self.empty} with no answer to any model variable.")
         low = sorted((v, k) for k, v in self.coverage.items() if v < 1)
@@ -105,7 +114,8 @@ class CheckResult(Presentable):
                 "indicators": list(self.spec.observed_names), "rows": self.rows, "complete_rows": self.complete,
                 "rows_with_gaps": self.with_gaps, "rows_without_answers": self.empty, "coverage": dict(self.coverage),
                 "groups": list(self.groups) if self.groups else None,
-                "design": self.design.to_dict() if self.design is not None else None, "caution": self.caution}
+                "design": self.design.to_dict() if self.design is not None else None, "caution": self.caution,
+                "rows_without_group": self.without_group, "problems": [p.to_dict() for p in self.problems]}
 
 
 @dataclass(frozen=True)

@@ -107,6 +107,7 @@ class ProblemNotice:
 
 NOT_ADMISSIBLE = "This solution is not admissible: do not interpret its estimates or its fit"
 CAUTION = "Check before interpreting this solution"
+DATA_CAUTION = "Check the data before fitting"  # a check's cautions: nothing was fitted
 
 
 def problem_notice(result) -> ProblemNotice | None:

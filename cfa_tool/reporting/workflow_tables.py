@@ -99,7 +99,7 @@ def comparison_report(comparison) -> Report:
     problems += [f"The lowest {' and '.join(indices)} belong{'s' if len(indices) == 1 else ''} to {name}, whose solution "
                  f"is not admissible: that is no reason to prefer it." for name, indices in lowest.items()]
     total = comparison.n_obs + comparison.rows_dropped
-    cautions = []
+    cautions = [f"{p.explanation} What to try: {p.advice}" for p in comparison.problems]  # the data's, first
     full_information = comparison.missing is MissingData.FULL_INFORMATION
     if comparison.rows_dropped > 0.05 * total and not (full_information or comparison.missing is MissingData.PAIRWISE):
         cautions.append(f"{comparison.rows_dropped} of {total} rows ({100 * comparison.rows_dropped / total:.0f}%) miss an "
@@ -558,7 +558,10 @@ def check_report(found) -> Report:
     rows = [[name, "100%" if share >= 1 else _percent_below_all(share)] for name, share in found.coverage.items()]
     table = _table("coverage", "Share of rows answering each model variable", [("Variable", "l"), ("Answered", "r")],
                    rows, values=(["Variable", "Share answering"], [[k, v] for k, v in found.coverage.items()]))
-    return Report(ResultKind.CHECK, "Model check", None, tuple(lines), (table,))
+    notice = T.problem_notice(found)
+    if notice is not None:
+        notice = ProblemNotice(T.DATA_CAUTION, notice.lines, False)
+    return Report(ResultKind.CHECK, "Model check", notice, tuple(lines), (table,))
 
 
 BUILDERS = {ResultKind.COMPARE: comparison_report, ResultKind.INVARIANCE: invariance_report,

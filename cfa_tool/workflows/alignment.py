@@ -597,7 +597,8 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
     ``flag_level``: level of the tests that flag non-invariant loadings and intercepts; ``trials``: Monte Carlo
     replications of the trustworthiness check (0 leaves it out), with ``seed``."""
     from cfa_tool.numerics.threads import blas_threads_for
-    from cfa_tool.pipeline.inputs import continuous_only, read_inputs_with_notes
+    from cfa_tool.pipeline.inputs import (analysed_odd_values, continuous_only, odd_values_named, read_inputs_with_notes,
+                                          with_odd_values)
 
     if not isinstance(group, str):
         raise OptionError(f"alignment needs a group column, given by its name (text), not {type(group).__name__}")
@@ -609,9 +610,11 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
     frame, source = loaded.frame, loaded.source
     notes = list(notes) + ([SCALE_SET_ASIDE] if spec.scaling else [])
     spec = configural_spec(continuous_only(spec, "align"))
-    with blas_threads_for(len(spec.observed_names)):  # one thread: the matrices are small, and faster so (numerics.threads)
+    loaded = analysed_odd_values(loaded, spec, group)  # values that look like no answers: named first
+    with blas_threads_for(len(spec.observed_names)), odd_values_named(loaded):  # one thread: small matrices (numerics.threads)
         result = _align(spec, frame, source, group, reference_group, variant, flag_level, trials, seed, missing,
                         max_iterations, notes)
+    result = replace(result, configural=with_odd_values(result.configural, loaded))
     if not loaded.row_filters:
         return result
     data = replace(result.configural.data, row_filters=loaded.row_filters, rows_in_file=len(loaded.read_frame))

@@ -38,9 +38,9 @@ from cfa_tool.language.spec import Spec
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fits
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.method import WeightKind
-from cfa_tool.pipeline.inputs import (_fit_rows, converged, design_test, moments_for, ordinal_items_of,
-                                      read_inputs_with_notes, refits_complete_rows, with_design,
-                                      without_exploratory_blocks)
+from cfa_tool.pipeline.inputs import (_fit_rows, converged, design_test, moments_for, odd_values_named,
+                                      ordinal_items_of, read_inputs_with_notes, refits_complete_rows, with_design,
+                                      with_odd_values, without_exploratory_blocks)
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.parallel import REFITS_TOGETHER, run_tasks
@@ -370,7 +370,9 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
         if design is not None:
             raise OptionError(f"ordinal items are not yet fitted with a sampling design, so the {design.names[0][0]} "
                               f"column '{design.names[0][1]}' cannot apply to their bootstrap; leave out the design")
-        result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
+        with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
+            result = with_odd_values(_fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator),
+                                     loaded)
         return bootstrap_fit(result, spec, numeric_columns(frame, result.observed, source), replications, seed,
                              bollen_stine, False, workers, scheduler, progress)
     refits_complete_rows(frame, spec.observed_names, missing, "bootstrap")
@@ -382,10 +384,12 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
         [(_, moments)], _ = moments_for(spec, frame, source, design=design)
     else:
         moments = sample_moments(frame, spec.observed_names, source)
-    result = converged(fit_moments(spec, moments, options))
+    with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
+        result = converged(fit_moments(spec, moments, options))
     result = replace(result, warnings=tuple(notes) + result.warnings)  # what reading and the row filters did
     if design is not None:
         result = with_design(result, design_summary(frame, design, [moments]))
+    result = with_odd_values(result, loaded)
     order = [moments.names.index(n) for n in result.observed]
     return bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, scheduler,
                          progress, moments.design)

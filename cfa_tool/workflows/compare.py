@@ -9,9 +9,12 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.pipeline.inputs import (choose_missing_handling, design_test, load_spec, make_options, moments_for,
+                                      odd_value_problems, odd_values_named,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_row_options, summary_source, with_design)
 from cfa_tool.data.matching import check_columns
+from cfa_tool.data.moments import row_numbers
+from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import OptionError, estimation_of
@@ -46,9 +49,11 @@ class Comparison(Presentable):
     # full-information ML, every row answering some of each model's variables
     missing: MissingData = MissingData.LISTWISE
     notes: tuple[str, ...] = ()
+    problems: tuple = ()  # of the data: values that look like no answers (assessment.admissibility.Problem)
 
     def to_dict(self) -> dict:
         return {
+            "data_problems": [p.to_dict() for p in self.problems],
             "n_obs": self.n_obs,
             "rows_dropped": self.rows_dropped,
             "incomplete_rows": self.missing.value,
@@ -114,45 +119,49 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     used = sorted({x for spec in specs for x in spec.observed_names})
     if group is not None and group in frame.columns:
         frame = frame.loc[frame[group].notna()]
-    pairwise = False
-    if ordinal_items:
-        if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is FitTest.YUAN_BENTLER:
-            raise OptionError("ordinal items are compared on every answer (pairwise present rows, as fit uses them) or "
-                              "on the complete rows (--incomplete-rows listwise); full-information ML and its "
-                              "Yuan-Bentler test are for continuous items")
-        pairwise = fit_options.missing is not MissingData.LISTWISE
-    else:
-        fit_options, missing_notes = choose_missing_handling(fit_options, frame, tuple(used), None)
-        notes = list(missing_notes) + list(notes)
-    if fit_options.missing is MissingData.FULL_INFORMATION or pairwise:  # the rows every model can use: some answers
-        answers = [frame[list(spec.observed_names)].notna().to_numpy().any(axis=1) for spec in specs]
-        complete = frame.loc[np.logical_and.reduce(answers)]
-    else:
-        complete = frame.dropna(subset=used)
-    dropped = len(loaded.frame) - len(complete)  # rows with missing answers (or none) or without a group
-    if design is not None:
-        complete, design_notes = check_design(complete, design, tuple(used), group, source)
-        notes = list(notes) + design_notes
-    if ordinal_items:
-        return _compare_ordinal(specs, names, complete, source, group, reference_group,
-                                replace(fit_options, missing=None if pairwise else MissingData.LISTWISE), ordinal_items,
-                                ordinal_estimator, dropped, design, pairwise, notes)
-    results = []
-    data_groups = []
-    for spec, name in zip(specs, names):
-        groups, _ = moments_for(spec, complete, source, group, reference_group, fit_options.missing, design=design)
-        data_groups.append(groups)
-        with estimation_of(f"model {name}"):
-            result = fit_moments(spec, groups, fit_options, group_column=group)
-        results.append(with_design(result, design_summary(complete, design, [m for _, m in groups]))
-                       if design is not None else result)
-    tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
-    return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
-                      fit_options.missing, tuple(notes))
+    # values that look like no answers in any model's items, among the rows compared: first in the report, and
+    # named first when a fit fails
+    loaded = replace(loaded, odd_values=odd_values(frame, used, row_numbers(frame)))
+    with odd_values_named(loaded):
+        pairwise = False
+        if ordinal_items:
+            if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is FitTest.YUAN_BENTLER:
+                raise OptionError("ordinal items are compared on every answer (pairwise present rows, as fit uses them) or "
+                                  "on the complete rows (--incomplete-rows listwise); full-information ML and its "
+                                  "Yuan-Bentler test are for continuous items")
+            pairwise = fit_options.missing is not MissingData.LISTWISE
+        else:
+            fit_options, missing_notes = choose_missing_handling(fit_options, frame, tuple(used), None)
+            notes = list(missing_notes) + list(notes)
+        if fit_options.missing is MissingData.FULL_INFORMATION or pairwise:  # the rows every model can use: some answers
+            answers = [frame[list(spec.observed_names)].notna().to_numpy().any(axis=1) for spec in specs]
+            complete = frame.loc[np.logical_and.reduce(answers)]
+        else:
+            complete = frame.dropna(subset=used)
+        dropped = len(loaded.frame) - len(complete)  # rows with missing answers (or none) or without a group
+        if design is not None:
+            complete, design_notes = check_design(complete, design, tuple(used), group, source)
+            notes = list(notes) + design_notes
+        if ordinal_items:
+            return _compare_ordinal(specs, names, complete, source, group, reference_group,
+                                    replace(fit_options, missing=None if pairwise else MissingData.LISTWISE), ordinal_items,
+                                    ordinal_estimator, dropped, design, pairwise, notes, odd_value_problems(loaded))
+        results = []
+        data_groups = []
+        for spec, name in zip(specs, names):
+            groups, _ = moments_for(spec, complete, source, group, reference_group, fit_options.missing, design=design)
+            data_groups.append(groups)
+            with estimation_of(f"model {name}"):
+                result = fit_moments(spec, groups, fit_options, group_column=group)
+            results.append(with_design(result, design_summary(complete, design, [m for _, m in groups]))
+                           if design is not None else result)
+        tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
+        return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
+                          fit_options.missing, tuple(notes), odd_value_problems(loaded))
 
 
 def _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items, method,
-                     dropped, design=None, pairwise: bool = False, notes=()) -> Comparison:
+                     dropped, design=None, pairwise: bool = False, notes=(), problems=()) -> Comparison:
     from cfa_tool.workflows.ordinal_compare import fit_ordinal_models, ordinal_difference_test
 
     estimations, results = fit_ordinal_models(specs, complete, source, group, reference_group, fit_options,
@@ -163,7 +172,7 @@ def _compare_ordinal(specs, names, complete, source, group, reference_group, fit
 
     tests, not_nested = _each_pair(names, results, test_pair, specs, likelihood=False)
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
-                      MissingData.PAIRWISE if pairwise else MissingData.LISTWISE, tuple(notes))
+                      MissingData.PAIRWISE if pairwise else MissingData.LISTWISE, tuple(notes), tuple(problems))
 
 
 def _compare_summary(specs, names, path, fit_options, group) -> Comparison:

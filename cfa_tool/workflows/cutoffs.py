@@ -27,8 +27,8 @@ from cfa_tool import options as check
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import OptionError
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fits
-from cfa_tool.pipeline.inputs import (_fit_rows, converged, ordinal_items_of, read_inputs_with_notes,
-                                      refits_complete_rows)
+from cfa_tool.pipeline.inputs import (_fit_rows, converged, odd_values_named, ordinal_items_of, read_inputs_with_notes,
+                                      refits_complete_rows, with_odd_values)
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
@@ -279,9 +279,11 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
-        result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
-        return fit_cutoffs(spec, result, replications, seed, workers, scheduler, progress)
+        with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
+            result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
+        return fit_cutoffs(spec, with_odd_values(result, loaded), replications, seed, workers, scheduler, progress)
     refits_complete_rows(frame, spec.observed_names, missing, "cutoffs")
-    result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
+    with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
+        result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
     result = replace(result, warnings=tuple(notes) + result.warnings)  # what reading and the row filters did
-    return fit_cutoffs(spec, result, replications, seed, workers, scheduler, progress)
+    return fit_cutoffs(spec, with_odd_values(result, loaded), replications, seed, workers, scheduler, progress)

@@ -220,12 +220,16 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         raise OptionError("ordinal items are scored by their posterior mean (with its standard deviation), so a "
                           "scoring method cannot be chosen; remove that option")
     design = design_columns(weights, cluster, strata, weight_kind)
-    result = api._fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
-    if not result.admissible:
-        problem = next((p for p in result.problems if p.kind.inadmissible), None)
-        why = problem.phrase() if problem is not None else result.message
-        raise EstimationError(f"the fitted solution is not admissible ({why}), so no factor scores are written; "
-                              f"run 'fit' to see its problems")
+    loaded = api.analysed_odd_values(loaded, spec, group)
+    with api.odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
+        result = api._fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
+                               design)
+        if not result.admissible:
+            problem = next((p for p in result.problems if p.kind.inadmissible), None)
+            why = problem.phrase() if problem is not None else result.message
+            raise EstimationError(f"the fitted solution is not admissible ({why}), so no factor scores are written; "
+                                  f"run 'fit' to see its problems")
+    result = api.with_odd_values(result, loaded)
     if ordinal_items:
         chosen = (ScoreMethod.EXPECTED_A_POSTERIORI,)
         models, labels = _ordinal_models(spec, _fitted_rows(frame, design, spec, group, source), source, ordinal_items,

@@ -17,8 +17,8 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (check_ordinal_options, choose_missing_handling, design_test, make_options,
-                                      moments_for, ordinal_estimator_option,
+from cfa_tool.pipeline.inputs import (analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test,
+                                      make_options, moments_for, odd_value_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design)
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
@@ -228,6 +228,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     design = design_columns(weights, cluster, strata, weight_kind)
     spec, loaded, read_notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
+    # values that look like no answers, among the rows with a group label: first among the cautions
+    data_cautions = tuple(f"{p.explanation} What to try: {p.advice}"
+                          for p in odd_value_problems(analysed_odd_values(loaded, spec, group)))
     if spec.invariant:
         raise OptionError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "
                           "'equal across groups' statements from the model file")
@@ -281,12 +284,12 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 why = result.problems[0] if result.problems else None
                 reason = (f" ({result.message}). {why.advice}" if why is not None else f" ({result.message})")
                 if not steps:  # nothing to report without a configural model
-                    raise EstimationError(f"the configural model did not converge{reason}")
+                    raise EstimationError(" ".join(data_cautions + (f"the configural model did not converge{reason}",)))
                 steps.append(InvarianceStep(level, result, None, False, ()))
                 stopped = (f"the {level} model did not converge{reason}; the ladder stops there"
                            + (", and the partial search could not run at this step" if partial != "none" else ""))
-                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, (stopped,) + tuple(notes),
-                                        rule)
+                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
+                                        data_cautions + (stopped,) + tuple(notes), rule)
             with threads:
                 test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
             holds = configural_fits(result) if test is None else _step_holds(rule, test, alpha, result, previous[1], level)
@@ -347,8 +350,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                            + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
                            + "): its fit and its difference test cannot show that invariance holds")
     differences, latent_note = latent_differences(steps)
-    return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, tuple(warnings), rule, differences,
-                            latent_note)
+    return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + tuple(warnings), rule,
+                            differences, latent_note)
 
 
 def _step_holds(rule: DecisionRule, test: DifferenceTest, alpha: float, result: FitResult, general: FitResult,

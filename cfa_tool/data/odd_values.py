@@ -1,0 +1,240 @@
+"""Values in the model's item columns that are almost surely not answers: a forgotten missing-value code
+(-99, 999, ...) and a spreadsheet's totals or means row left under the data.
+
+The rules are the project's own screening rules (common practice of data cleaning, not a published test),
+kept simple and strict so that ordinary data never trigger them (the tests count false alarms on simulated
+normal data, the bundled demo data and Holzinger & Swineford 1939):
+
+* **missing-value code**: a whole number that is negative or written with nines only (9, 99, 999, -9, -99,
+  ...) and lies at least the range of the column's other answers beyond them (below their lowest or above
+  their highest), given in fewer than half of the column's answers;
+* **far beyond the other rows**: a row whose values lie more than twice the range of the column's other answers
+  beyond them in at least half of the item columns it answers (two or more: a totals row), or a value that lies
+  more than ten times that range beyond them (a typing error such as 55 for 5 on a 1 to 5 scale); a single
+  value only a few ranges beyond the others is left alone, since skewed measures (reaction times, incomes)
+  give such values;
+* **a row of sums or means**: a row whose values equal, in every item column it answers (three or more), the
+  sums (to within 0.5) or the means (to within 0.005, two decimals) of the other rows' answers.
+
+Values are judged from the most extreme inwards, so that -99 and -9 in one column are both found; each
+judgement needs at least ten other answers.
+"""
+
+from __future__ import annotations
+
+import enum
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from cfa_tool.errors import printable
+
+MIN_OTHERS = 10  # answers a judgement needs besides the value judged
+FAR_RANGES = 2.0  # a row with values further beyond the others than this many times their range in half its columns
+FAR_ALONE = 10.0  # ... or with one value this many ranges beyond them
+SHOWN = 3  # columns, values and row numbers a caution names before 'and N more'
+MEAN_TOLERANCE = 0.005  # means written to two decimals
+SUM_TOLERANCE = 0.5  # sums written as whole numbers
+
+
+class OddKind(enum.Enum):
+    """Why values look like no answers; ``value`` is the word the JSON uses."""
+
+    MISSING_CODE = "missing-value code"
+    FAR_BEYOND = "far beyond the other rows"
+    SUMS_ROW = "row of sums"
+    MEANS_ROW = "row of means"
+
+
+@dataclass(frozen=True)
+class OddValues:
+    """Values of one kind that look like no answers: a code (``kind`` MISSING_CODE, one ``value`` in several
+    columns) or one row (the other kinds: ``values`` per column).  ``rows`` are data-row numbers (1 = the first
+    row after the header); ``answers`` counts the cells."""
+
+    kind: OddKind
+    columns: tuple[str, ...]
+    values: tuple[float, ...]  # one per column
+    rows: tuple[int, ...]
+    answers: int
+    others: tuple[float, float]  # lowest and highest of the other answers (over the columns named)
+
+    def caution(self, source: str) -> str:
+        """The one line a report shows first: the columns, the value, how many rows and which."""
+        name = source.replace("\\", "/").rsplit("/", 1)[-1]
+        low, high = self.others
+        if self.kind is OddKind.MISSING_CODE:
+            value = _number(self.values[0])
+            rows = "row" if len(self.rows) == 1 else "rows"
+            where = (f"The item column {printable(self.columns[0])} of {name} holds" if len(self.columns) == 1 else
+                     f"{len(self.columns)} item columns of {name} ({_listed(self.columns)}) hold")
+            return (f"{where} the value "
+                    f"{value} ({self.answers} answers in {len(self.rows)} {rows}: data {rows} {_listed(self.rows)}), "
+                    f"far outside the other answers ({_number(low)} to {_number(high)}): a missing-value code read "
+                    f"as an answer?")
+        shown = ", ".join(f"{printable(c)} {_number(v)}" for c, v in zip(self.columns[:SHOWN], self.values[:SHOWN]))
+        more = f" and {len(self.columns) - SHOWN} more" if len(self.columns) > SHOWN else ""
+        what = {OddKind.FAR_BEYOND: f"values far beyond every other row's answers ({_number(low)} to {_number(high)})",
+                OddKind.SUMS_ROW: "the sums of the other rows' answers",
+                OddKind.MEANS_ROW: "the means of the other rows' answers"}[self.kind]
+        guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
+                 else "a totals or means row of a spreadsheet?")
+        return (f"Data row {self.rows[0]} of {name} holds {what} in {len(self.columns)} item "
+                f"column{'s' if len(self.columns) != 1 else ''} ({shown}{more}): {guess}")
+
+    def advice(self) -> str:
+        if self.kind is OddKind.MISSING_CODE:
+            return (f"If {_number(self.values[0])} means 'no answer', give --missing-codes {_number(self.values[0])} "
+                    f"(or correct those answers in the file).")
+        return (f"Delete data row {self.rows[0]} from the file (or leave it out with a --keep filter) if it holds no "
+                f"one's answers; otherwise check those answers.")
+
+    def to_dict(self) -> dict:
+        return {"kind": self.kind.value, "columns": list(self.columns), "values": list(self.values),
+                "rows": list(self.rows), "answers": self.answers}
+
+
+def odd_values(frame: pd.DataFrame, columns: tuple[str, ...] | list[str],
+               row_numbers: np.ndarray | None = None) -> tuple[OddValues, ...]:
+    """What in ``columns`` of ``frame`` looks like no answers (see the module's rules), codes first."""
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # values near the float limit judge as inf
+        return _odd_values(frame, columns, row_numbers)
+
+
+def _odd_values(frame: pd.DataFrame, columns, row_numbers) -> tuple[OddValues, ...]:
+    numbers = np.arange(1, len(frame) + 1) if row_numbers is None else np.asarray(row_numbers)
+    names = [c for c in columns if c in frame.columns and pd.api.types.is_numeric_dtype(frame[c])
+             and not pd.api.types.is_complex_dtype(frame[c])]  # other columns are refused where they are read
+    if not names or len(frame) <= MIN_OTHERS:
+        return ()
+    X = frame[names].to_numpy(dtype=float, na_value=np.nan)  # infinite values are judged by no rule
+    flagged = [(j, value, code, ranges) for j in range(X.shape[1]) for value, code, ranges in _peeled(X[:, j])]
+    if not flagged:  # the common case: only the rows-of-sums-or-means rule to apply
+        return tuple(_row_findings(X, X, X, np.zeros(X.shape, dtype=bool), _summary_rows(X, X), names, numbers))
+    codes: dict[float, list[int]] = {}  # code -> columns
+    code_cells = np.zeros(X.shape, dtype=bool)
+    far = np.zeros(X.shape, dtype=bool)
+    alone = np.zeros(X.shape, dtype=bool)
+    for j, value, code, ranges in flagged:
+        cells = X[:, j] == value
+        if code:
+            codes.setdefault(value, []).append(j)
+            code_cells[:, j] |= cells
+        else:
+            far[:, j] |= cells
+            alone[:, j] |= cells & (ranges > FAR_ALONE)
+    answered = np.isfinite(X).sum(axis=1) - code_cells.sum(axis=1)
+    counted = far.sum(axis=1)
+    far &= ((counted >= 2) & (2 * counted >= answered) | alone.any(axis=1))[:, None]
+    found: list[OddValues] = []
+    for value, js in sorted(codes.items(), key=lambda kv: -int((X[:, kv[1]] == kv[0]).sum())):
+        cells = X[:, js] == value
+        rows = np.flatnonzero(cells.any(axis=1))
+        found.append(OddValues(OddKind.MISSING_CODE, tuple(names[j] for j in js), (float(value),) * len(js),
+                               tuple(int(numbers[r]) for r in rows), int(cells.sum()), _others(X[:, js][~cells])))
+    clean = np.where(code_cells, np.nan, X)
+    base = np.where(far, np.nan, clean)
+    return tuple(found) + tuple(_row_findings(X, clean, base, far, _summary_rows(clean, base), names, numbers))
+
+
+def _row_findings(X: np.ndarray, clean: np.ndarray, base: np.ndarray, far: np.ndarray, summary: dict[int, OddKind],
+                  names: list[str], numbers: np.ndarray) -> list[OddValues]:
+    """One finding per row far beyond the others or of sums or means (``clean``: ``X`` without codes; ``base``:
+    without the values far beyond either)."""
+    found = []
+    for r in sorted(set(np.flatnonzero(far.any(axis=1))) | set(summary)):
+        kind = summary.get(r, OddKind.FAR_BEYOND)
+        js = np.flatnonzero(far[r]) if kind is OddKind.FAR_BEYOND else np.flatnonzero(np.isfinite(clean[r]))
+        found.append(OddValues(kind, tuple(names[j] for j in js), tuple(float(clean[r, j]) for j in js),
+                               (int(numbers[r]),), len(js), _others(np.delete(base[:, js], r, axis=0))))
+    return found
+
+
+def code_like(value: float) -> bool:
+    """A whole number that is negative or written with nines only (9, 99, 999, -9, -99, ...): the values data
+    collection programs commonly use for 'no answer'."""
+    if not np.isfinite(value) or value != np.floor(value) or abs(value) >= 1e9:  # codes have a few digits
+        return False
+    digits = str(int(abs(value)))
+    return value < 0 or set(digits) == {"9"}
+
+
+def _peeled(x: np.ndarray) -> list[tuple[float, bool, float]]:
+    """(value, whether a code, how many ranges of the other answers beyond them) of the values that lie far beyond the column's other answers, judged from
+    each end inwards."""
+    x = x[np.isfinite(x)]
+    if len(x) <= MIN_OTHERS:
+        return []
+    values, counts = np.unique(x, return_counts=True)
+    lo, hi = 0, len(values) - 1
+    flagged: list[tuple[float, bool, float]] = []
+    left = len(x)
+    for end in (1, -1):
+        while hi > lo:
+            k = hi if end == 1 else lo
+            v = values[k]
+            rest = values[lo:hi] if end == 1 else values[lo + 1:hi + 1]
+            n_rest = left - counts[k]
+            span = rest[-1] - rest[0]
+            if n_rest < MIN_OTHERS or counts[k] * 2 >= left or span <= 0:
+                break
+            beyond = v - rest[-1] if end == 1 else rest[0] - v
+            code = code_like(v)
+            if not (beyond >= span if code else beyond > FAR_RANGES * span):
+                break
+            flagged.append((float(v), code, float(beyond / span)))
+            left = n_rest
+            if end == 1:
+                hi -= 1
+            else:
+                lo += 1
+    return flagged
+
+
+def _summary_rows(X: np.ndarray, base: np.ndarray) -> dict[int, OddKind]:
+    """Rows of ``X`` whose answers equal the sums or the means of the other rows' answers in ``base`` (``X`` without
+    the values far beyond) in every item column they answer (three or more), with a value no other row gives in
+    its column.  Column by column on the rows still in question, so that large files cost little."""
+    in_base = np.isfinite(base)
+    totals = np.where(in_base, base, 0.0).sum(axis=0)
+    counts = in_base.sum(axis=0)
+    rows = np.flatnonzero(np.isfinite(X).sum(axis=1) >= 3)
+    as_sum = np.ones(len(rows), dtype=bool)
+    as_mean = np.ones(len(rows), dtype=bool)
+    for j in range(X.shape[1]):
+        x = X[rows, j]
+        answered = np.isfinite(x)
+        own = in_base[rows, j]
+        others = totals[j] - np.where(own, base[rows, j], 0.0)  # the other rows' sum
+        with np.errstate(invalid="ignore", divide="ignore"):
+            mean = others / (counts[j] - own)
+        as_sum &= ~answered | (np.abs(x - others) <= SUM_TOLERANCE + 1e-9)
+        as_mean &= ~answered | (np.abs(x - mean) <= MEAN_TOLERANCE + 1e-9)
+        keep = as_sum | as_mean
+        rows, as_sum, as_mean = rows[keep], as_sum[keep], as_mean[keep]
+        if not len(rows):
+            return {}
+    out: dict[int, OddKind] = {}
+    for r, summed in zip(rows, as_sum):
+        js = np.flatnonzero(np.isfinite(X[r]))
+        if any((np.delete(X[:, j], r) != X[r, j]).all() for j in js):
+            out[int(r)] = OddKind.SUMS_ROW if summed else OddKind.MEANS_ROW
+    return out
+
+
+def _others(values: np.ndarray) -> tuple[float, float]:
+    """The lowest and highest of the answers ``values`` (gaps left out)."""
+    rest = values[np.isfinite(values)]
+    return (float(rest.min()), float(rest.max())) if len(rest) else (float("nan"), float("nan"))
+
+
+def _listed(items) -> str:
+    items = [printable(str(i)) for i in items]
+    if len(items) <= SHOWN:
+        return ", ".join(items)
+    return f"{', '.join(items[:SHOWN])} and {len(items) - SHOWN} more"
+
+
+def _number(value: float) -> str:
+    return f"{value:g}" if abs(value) < 1e15 else f"{value:.6g}"

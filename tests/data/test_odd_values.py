@@ -1,0 +1,116 @@
+"""The screening for values that are not answers (cfa_tool.data.odd_values): forgotten missing-value codes and a
+spreadsheet's totals or means row are found; ordinary data give no false alarm.  The rules are the project's own
+(common practice of data cleaning, not a published test); the data sets they must leave alone are the bundled demo
+data, Holzinger & Swineford (1939, the 301 children of tests/datasets) and seeded normal samples."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from cfa_tool.data.odd_values import OddKind, code_like, odd_values
+from cfa_tool.errors import EstimationError
+
+ROOT = Path(__file__).resolve().parents[2]
+DEMO = ROOT / "demo" / "rider_survey.csv"
+HOLZINGER = ROOT / "tests" / "datasets" / "holzinger_swineford_1939.csv"
+
+
+def _numeric(frame: pd.DataFrame) -> list[str]:
+    return [c for c in frame.columns if pd.api.types.is_numeric_dtype(frame[c])]
+
+
+def _likert(seed: int, n: int = 300, p: int = 6) -> pd.DataFrame:
+    rng = np.random.default_rng(seed)
+    factor = rng.standard_normal((n, 1))
+    items = np.clip(np.round(3 + 0.8 * factor + 0.7 * rng.standard_normal((n, p))), 1, 5)
+    return pd.DataFrame(items, columns=[f"x{k + 1}" for k in range(p)])
+
+
+def test_a_forgotten_code_in_a_simulated_item_is_named_with_its_rows():
+    frame = _likert(1)
+    frame.loc[[4, 17, 250], "x3"] = -99  # data rows 5, 18 and 251
+    found = odd_values(frame, list(frame.columns))
+    assert len(found) == 1
+    odd = found[0]
+    assert odd.kind is OddKind.MISSING_CODE and odd.columns == ("x3",) and odd.values == (-99.0,)
+    assert odd.rows == (5, 18, 251) and odd.answers == 3 and odd.others == (1.0, 5.0)
+    assert "--missing-codes -99" in odd.advice()
+
+
+def test_codes_within_codes_and_codes_of_nines():
+    frame = _likert(2)
+    frame.loc[[1, 2], "x1"] = -99
+    frame.loc[[3], "x1"] = -9
+    frame.loc[[7, 8], "x2"] = 999
+    frame.loc[[9], "x4"] = 9  # on a 1-to-5 scale, 9 lies the range (4) beyond the highest answer
+    found = {(o.values[0], o.columns) for o in odd_values(frame, list(frame.columns))}
+    assert found == {(-99.0, ("x1",)), (-9.0, ("x1",)), (999.0, ("x2",)), (9.0, ("x4",))}
+
+
+def test_answers_on_scales_that_hold_negative_numbers_or_nines_are_answers():
+    rng = np.random.default_rng(3)
+    frame = pd.DataFrame({"bipolar": rng.integers(-3, 4, 300).astype(float),  # -3..3
+                          "ten": rng.integers(0, 11, 300).astype(float),  # 0..10 holds 9
+                          "nine": rng.integers(1, 10, 300).astype(float)})  # 1..9
+    assert odd_values(frame, list(frame.columns)) == ()
+    assert code_like(-99) and code_like(999) and code_like(9) and not code_like(5) and not code_like(-9.5)
+
+
+def test_a_totals_row_under_the_demo_data_is_named_by_its_row():
+    frame = pd.read_csv(DEMO)
+    items = _numeric(frame)  # the twelve rating items (1 to 5, some unanswered)
+    assert len(items) == 12
+    totals = frame[items].count().to_frame().T  # a spreadsheet's COUNT row, as in the new user's file
+    frame = pd.concat([frame, totals], ignore_index=True)
+    found = odd_values(frame, items)
+    assert [(o.kind, o.rows) for o in found] == [(OddKind.FAR_BEYOND, (len(frame),))]
+    assert found[0].columns == tuple(items) and "Delete data row" in found[0].advice()
+
+
+@pytest.mark.parametrize("kind, make", [(OddKind.SUMS_ROW, lambda f: f.sum()), (OddKind.MEANS_ROW, lambda f: f.mean().round(2))])
+def test_rows_of_sums_and_of_means_are_found(kind, make):
+    frame = _likert(4)
+    frame = pd.concat([frame, make(frame).to_frame().T], ignore_index=True)
+    found = odd_values(frame, list(frame.columns))
+    assert [(o.kind, o.rows, len(o.columns)) for o in found] == [(kind, (len(frame),), 6)]
+
+
+def test_a_typing_error_far_beyond_the_scale_is_found_alone():
+    frame = _likert(5)
+    frame.loc[10, "x2"] = 55  # 55 for 5: 50 beyond the highest answer, more than ten ranges (4)
+    found = odd_values(frame, list(frame.columns))
+    assert [(o.kind, o.rows, o.columns) for o in found] == [(OddKind.FAR_BEYOND, (11,), ("x2",))]
+
+
+@pytest.mark.parametrize("path", [DEMO, HOLZINGER], ids=["demo", "holzinger_swineford_1939"])
+def test_ordinary_data_sets_raise_no_alarm(path):
+    frame = pd.read_csv(path)
+    assert odd_values(frame, _numeric(frame)) == ()
+
+
+def test_no_false_alarm_in_200_seeded_normal_data_sets():
+    alarms = 0
+    for seed in range(200):
+        rng = np.random.default_rng(seed)
+        n, p = int(rng.integers(50, 1000)), int(rng.integers(3, 20))
+        frame = pd.DataFrame(rng.standard_normal((n, p)), columns=[f"x{k}" for k in range(p)])
+        alarms += bool(odd_values(frame, list(frame.columns)))
+    assert alarms == 0  # false alarms: 0 of 200 (also 0 of 200 for rounded 1-to-5 items and for t(3) data)
+
+
+def test_a_failed_estimation_names_the_values_first():
+    from cfa_tool.data.readers import LoadedData
+    from cfa_tool.pipeline.inputs import odd_values_named
+
+    frame = _likert(6)
+    frame.loc[[0, 1], "x1"] = -99
+    loaded = LoadedData(frame, "survey.csv", odd_values=odd_values(frame, list(frame.columns)))
+    with pytest.raises(EstimationError) as caught:
+        with odd_values_named(loaded):
+            raise EstimationError("the estimation did not converge")
+    message = str(caught.value)
+    assert message.index("-99") < message.index("--missing-codes -99") < message.index("did not converge")
