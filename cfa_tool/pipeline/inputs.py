@@ -527,8 +527,8 @@ def continuous_only(spec: Spec, command: str) -> Spec:
     if spec.ordinal:
         name = spec.ordinal[0]
         raise ModelError(f"'{command}' treats every item as continuous, but the model declares '{name.text}' ordinal; "
-                         f"remove the 'ordinal' statement to analyse the items as continuous ('fit' and 'invariance' "
-                         f"handle ordinal items)", name.location, spec.source_line(name.location))
+                         f"remove the 'ordinal' statement to analyse the items as continuous (the other commands, "
+                         f"'invariance' across a few groups among them, handle ordinal items)", name.location, spec.source_line(name.location))
     return spec
 
 
