@@ -4,6 +4,7 @@ every writer draws.  Problems of a solution come first; the cautions come last."
 
 from __future__ import annotations
 
+from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.method import MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
@@ -371,6 +372,11 @@ def bootstrap_report(boot) -> Report:
     if _design_lines(result):
         lines += [*_design_lines(result), "Resamples draw whole clusters (each row its own cluster without them) within "
                                           "strata, and keep the rows' weights."]
+        clusters = result.design.clusters
+        if clusters is not None and clusters < SMALL_NUMBER_OF_CLUSTERS:
+            lines.append(f"With only {clusters} clusters the resamples are few kinds of the same clusters, so the "
+                         f"bootstrap intervals are too narrow and unsteady (fewer than about {SMALL_NUMBER_OF_CLUSTERS} "
+                         f"clusters, common practice); read them as rough.")
     if boot.bollen_stine_p is not None:
         lines.append(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
                      f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_value(result.fit.p_value)}).")

@@ -445,3 +445,12 @@ def test_mardia_under_weights_says_it_is_unweighted(hs_data):
     weighted = cfa_tool.fit(THREE_FACTORS, hs_data.assign(w=1.0 + np.arange(len(hs_data)) % 3), weights="w")
     assert all(line.endswith("describe the rows as they are, unweighted.") for line in normality_lines(weighted))
     assert not any("unweighted" in line for line in normality_lines(cfa_tool.fit(THREE_FACTORS, hs_data)))
+
+
+def test_bootstrap_with_few_clusters_says_its_intervals_are_rough(hs_data):
+    # a hostile trial: resampling 2 clusters (3 distinct resamples) printed intervals without a word on them
+    from cfa_tool.reporting.workflow_tables import bootstrap_report
+
+    data = hs_data.assign(site=np.arange(len(hs_data)) % 12)
+    boot = cfa_tool.bootstrap(THREE_FACTORS, data, replications=20, bca=False, bollen_stine=False, cluster="site")
+    assert any(line.startswith("With only 12 clusters") for line in bootstrap_report(boot).lines)
