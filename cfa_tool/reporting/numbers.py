@@ -10,9 +10,11 @@ def missing(value) -> bool:
 
 
 def num(value, digits: int = 3) -> str:
+    """A value to ``digits`` decimals; a value that rounds to zero has no minus sign (never '-0.00')."""
     if missing(value):
         return ""
-    return f"{value:.{digits}f}"
+    text = f"{value:.{digits}f}"
+    return text.lstrip("-") if float(text) == 0.0 else text
 
 
 def unit(value, digits: int = 3) -> str:

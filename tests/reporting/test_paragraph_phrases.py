@@ -47,3 +47,12 @@ def test_a_p_value_of_one_is_never_printed_as_exact():
     from cfa_tool.reporting.tables import p_phrase
 
     assert p_value(1.0) == "> .999" and p_phrase(0.99995) == "> .999" and p_value(0.5) == ".500"
+
+
+def test_a_value_that_rounds_to_zero_has_no_minus_sign():
+    # a new user's invariance table showed an interval bound of '-0.00'
+    from cfa_tool.reporting.numbers import num, unit
+
+    assert num(-0.0004, 2) == "0.00" and num(-0.004, 2) == "0.00"
+    assert num(-0.006, 2) == "-0.01" and num(0.0, 3) == "0.000"
+    assert unit(-0.0004, 3) == ".000"
