@@ -722,6 +722,10 @@ def configural_spec(spec: Spec) -> Spec:
             seen[item.text] = factor.name.text
     settings = [r for s in spec.fixed for r in s.refs] + list(spec.freed) + [r for refs in spec.equal for r in refs]
     for ref in settings:
+        if ref.group is not None:  # the pooled start and every group's configural fit share one model
+            raise ModelError(f"alignment fits the same configural model in every group, so a statement for one group "
+                             f"cannot apply; remove '{ref}'", ref.location, spec.source_line(ref.location))
+    for ref in settings:
         if ref.kind in ("loading", "intercept", "mean") or (ref.kind == "variance" and ref.names[0] in spec.factor_names):
             raise ModelError(f"alignment starts from the configural model with every loading and intercept free in every "
                              f"group and each factor's variance 1 and mean 0; remove the statement on {ref}",

@@ -393,3 +393,12 @@ def test_row_filters_are_stated_in_the_alignment_report(hs_data):
     assert sum(result.sizes) == kept
     assert f"kept by the row filter 'ageyr >= 13' ({len(hs_data)} rows in the file)" in header_lines(result)[1]
     assert any(f"kept {kept} of {len(hs_data)} rows" in n for n in result.notes)
+
+
+def test_a_statement_for_one_group_is_refused_with_the_reason(hs_data):
+    # a hostile trial: align said "'in group ...' needs groups: give the group column" though it was given
+    from cfa_tool.errors import ModelError
+
+    model = "factor visual: x1, x2, x3\nin group Pasteur: fix variance(x1) = 0.3\n"
+    with pytest.raises(ModelError, match="a statement for one group cannot apply"):
+        cfa_tool.align(model, hs_data, "school", trials=0)
