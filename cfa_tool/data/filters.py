@@ -68,6 +68,11 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str) ->
         if isinstance(f.value, float) and numeric.notna().sum() == column.notna().sum():
             values, target = numeric, f.value
         else:
+            numbers_only = numeric.notna().sum() == column.notna().sum()
+            if f.operator not in ("=", "!=") and numbers_only and not isinstance(f.value, float):
+                raise OptionError(f"row filter '{printable(f)}': '{printable(str(f.value))}' is not a number, and "
+                                  f"{f.operator} compares numbers (write numbers with a decimal point; text is compared "
+                                  f"with = or !=)")
             if f.operator not in ("=", "!="):
                 raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds text, which can only be "
                                   f"compared with = or !=")

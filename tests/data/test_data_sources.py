@@ -353,3 +353,13 @@ def test_row_filters_are_stated_where_the_rows_are(hs_data, tmp_path):
     unfiltered = cfa_tool.fit(THREE_FACTORS, path)
     assert rows_phrase(unfiltered.data) == "301 rows analysed of 301 read"
     assert "row_filters" not in unfiltered.to_dict()["data"]
+
+
+def test_a_filter_comparing_with_text_names_the_value(hs_data):
+    # a hostile trial: 'x1 > abc' said "'x1' holds text" although x1 holds numbers
+    with pytest.raises(OptionError, match="'abc' is not a number, and > compares numbers"):
+        cfa_tool.fit(THREE_FACTORS, hs_data, keep=["x1 > abc"])
+    with pytest.raises(OptionError, match="'1,5' is not a number"):
+        cfa_tool.fit(THREE_FACTORS, hs_data, keep=["x1 > 1,5"])
+    with pytest.raises(OptionError, match="'school' holds text"):
+        cfa_tool.fit(THREE_FACTORS, hs_data, keep=["school > 3"])
