@@ -64,7 +64,7 @@ def means_table(result, k: int) -> ReportTable:
     rows = [[g.group, str(g.rows), num(g.mean), num(g.mean_se), num(g.variance), num(g.variance_se),
              _percent(shares[g.group])] for g in factor.groups]
     ranked = sorted(factor.groups, key=lambda g: -g.mean)
-    note = (f"Groups in the data's order, the reference group first. Highest mean: {ranked[0].group}; lowest: "
+    note = (f"Groups in the order of their labels, the reference group first. Highest mean: {ranked[0].group}; lowest: "
             f"{ranked[-1].group}. The reference group's "
             + ("mean and variance are fixed (no standard error)." if result.reference_mean is ReferenceMean.ZERO
                else "variance is fixed at 1 (no standard error).")
