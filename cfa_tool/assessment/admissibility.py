@@ -71,6 +71,10 @@ class Problem:
         return {"kind": self.kind.value, "inadmissible": self.kind.inadmissible, "parameters": list(self.parameters),
                 "value": value, "group": self.group, "explanation": self.explanation, "advice": self.advice}
 
+    def line(self) -> str:
+        """The problem as the views list it: the explanation, then what to try."""
+        return f"{self.explanation} What to try: {self.advice}"
+
     def phrase(self) -> str:
         """The problem in the words of a methods paragraph, e.g. 'a negative residual variance of x9 (-1.02)'."""
         names = _names(self.parameters[0]) if self.parameters else ()

@@ -414,18 +414,16 @@ def design_test(fit_options, design: DesignColumns):
 
 def with_design(result: FitResult, design) -> FitResult:
     """The result stating the design it was fitted under (status line, JSON, methods paragraph, cautions)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
     problems = result.problems
     caution = design.caution(len(result.parameter_labels))
     if caution:  # first in every view: the standard errors and tests themselves are in doubt
-        from cfa_tool.assessment.admissibility import Problem, ProblemKind
-
         problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), caution,
                              "read the p-values with caution, or fit without --cluster and say that rows are nested in "
                              "clusters."),)
     uneven = design.weight_caution(len(result.parameter_labels))
     if uneven:
-        from cfa_tool.assessment.admissibility import Problem, ProblemKind
-
         problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,
                              "check the weights (a few rows may carry most of them), trim extreme weights by the survey's "
                              "rules, or report the unweighted fit beside the weighted one."),)
@@ -439,6 +437,16 @@ def with_design(result: FitResult, design) -> FitResult:
                    estimator=f"{method.sentence(len(result.groups))}; {design.status()}", problems=problems)
 
 
+def rows_with_gaps(frame: pd.DataFrame, names: tuple[str, ...]) -> np.ndarray:
+    """Which rows miss an answer on one of ``names`` (column by column: a sub-frame of the model variables costs
+    more)."""
+    gap = np.zeros(len(frame), dtype=bool)
+    for name in names:
+        values = frame[name].to_numpy()
+        gap |= np.isnan(values) if values.dtype.kind == "f" else pd.isna(values)
+    return gap
+
+
 def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, ...],
                             group: str | None) -> tuple[object, list[str]]:
     """Rows with missing answers are kept by default: full-information ML when a model variable has
@@ -448,10 +456,7 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     if fit_options.test is FitTest.YUAN_BENTLER:  # the robust test of full-information ML
         return replace(fit_options, missing=MissingData.FULL_INFORMATION), []
     robust = fit_options.test is FitTest.ROBUST
-    gap = np.zeros(len(frame), dtype=bool)  # column by column: a sub-frame of the model variables costs more
-    for name in names:
-        values = frame[name].to_numpy()
-        gap |= np.isnan(values) if values.dtype.kind == "f" else pd.isna(values)
+    gap = rows_with_gaps(frame, names)
     rows = len(frame)
     if group is not None and group in frame.columns:
         labelled = frame[group].notna().to_numpy()
@@ -528,7 +533,8 @@ def continuous_only(spec: Spec, command: str) -> Spec:
         name = spec.ordinal[0]
         raise ModelError(f"'{command}' treats every item as continuous, but the model declares '{name.text}' ordinal; "
                          f"remove the 'ordinal' statement to analyse the items as continuous (the other commands, "
-                         f"'invariance' across a few groups among them, handle ordinal items)", name.location, spec.source_line(name.location))
+                         f"'invariance' across a few groups among them, handle ordinal items)", name.location,
+                         spec.source_line(name.location))
     return spec
 
 
@@ -543,9 +549,7 @@ def refits_complete_rows(frame: pd.DataFrame, names: tuple[str, ...], missing, c
                           f"give --incomplete-rows listwise or leave the option out")
     if missing is MissingData.LISTWISE:
         return
-    gap = np.zeros(len(frame), dtype=bool)
-    for name in names:
-        gap |= frame[name].isna().to_numpy()
+    gap = rows_with_gaps(frame, names)
     if gap.sum() > LISTWISE_WARNING_SHARE * len(frame):
         raise OptionError(f"{int(gap.sum())} of {len(frame)} rows miss some answers on model variables, and "
                           f"'{command}' refits the complete rows only (fit keeps every row by full-information ML, "

@@ -115,8 +115,7 @@ def problem_notice(result) -> ProblemNotice | None:
     problems = getattr(result, "problems", ())
     if not problems:
         return None
-    lines = tuple((f"Group {p.group}: " if p.group is not None else "") + f"{p.explanation} What to try: {p.advice}"
-                  for p in problems)
+    lines = tuple((f"Group {p.group}: " if p.group is not None else "") + p.line() for p in problems)
     inadmissible = not result.admissible
     return ProblemNotice(NOT_ADMISSIBLE if inadmissible else CAUTION, lines, inadmissible)
 
@@ -524,13 +523,14 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
                      if r.kind == "factor_variance" and r.group == g.label and not r.free and r.estimate == 1.0}
     body, reasons, numbers = [], [], []
     names = list(traits)
+    parameters_are_correlations = not higher_order(result)  # otherwise the factors' correlations are implied ones
     for i, a in enumerate(names):
         for b in names[i + 1:]:
             row = correlations.get(frozenset((a, b)))
             implied = implied_factor_correlation(result, group, a, b)
             r = implied if implied is not None else (row.standardized if row is not None else 0.0)
             interval = ""
-            if row is not None and row.free and {a, b} <= unit_variance and not higher_order(result):
+            if row is not None and row.free and {a, b} <= unit_variance and parameters_are_correlations:
                 # the covariance parameter is the correlation
                 interval = f"[{unit(row.ci95[0], 2)}, {unit(row.ci95[1], 2)}]"
             h = htmt.get((a, b)) or htmt.get((b, a))

@@ -100,7 +100,7 @@ def comparison_report(comparison) -> Report:
     problems += [f"The lowest {' and '.join(indices)} belong{'s' if len(indices) == 1 else ''} to {name}, whose solution "
                  f"is not admissible: that is no reason to prefer it." for name, indices in lowest.items()]
     total = comparison.n_obs + comparison.rows_dropped
-    cautions = [f"{p.explanation} What to try: {p.advice}" for p in comparison.problems]  # the data's, first
+    cautions = [p.line() for p in comparison.problems]  # the data's, first
     full_information = comparison.missing is MissingData.FULL_INFORMATION
     if comparison.rows_dropped > 0.05 * total and not (full_information or comparison.missing is MissingData.PAIRWISE):
         cautions.append(f"{comparison.rows_dropped} of {total} rows ({100 * comparison.rows_dropped / total:.0f}%) miss an "
