@@ -44,7 +44,25 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
         mu, sigma = new_mu, new_sigma
         if change < tolerance * max(1.0, np.max(np.abs(sigma))):
             return mu, sigma, iteration
+        if iteration % 50 == 0 and _smallest_share(sigma) < 1e-9:
+            raise EstimationError(_no_maximum(sigma, iteration))
+    if _smallest_share(sigma) < 1e-5:
+        raise EstimationError(_no_maximum(sigma, max_iterations))
     raise EstimationError(f"the saturated model for the incomplete data did not converge in {max_iterations} EM iterations")
+
+
+def _no_maximum(sigma: np.ndarray, iterations: int) -> str:
+    """The likelihood of the unrestricted model grows without bound as its covariance matrix becomes singular, which
+    happens when the rows answer too few items together (e.g. fewer complete rows than items in a small group)."""
+    return (f"the saturated model for the incomplete data did not converge in {iterations} EM iterations: its "
+            f"covariance matrix is becoming singular (smallest eigenvalue {_smallest_share(sigma):.1g} of the largest), "
+            f"so the likelihood may have no maximum; the rows do not carry enough answers together for this many items")
+
+
+def _smallest_share(sigma: np.ndarray) -> float:
+    """The covariance matrix's smallest eigenvalue as a share of its largest."""
+    values = np.linalg.eigvalsh(sigma)
+    return float(values[0] / values[-1])
 
 
 def weighted_available_moments(rows: np.ndarray, weights: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

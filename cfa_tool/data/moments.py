@@ -11,7 +11,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from cfa_tool.errors import DataError, printable
+from cfa_tool.errors import DataError, EstimationError, printable
 from cfa_tool.method import MissingData
 from cfa_tool.numbers import number as strict_number
 from cfa_tool.numerics.linalg import cholesky_log_det
@@ -236,7 +236,14 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     i, j = np.unravel_index(np.argmin(together), together.shape)
     if together[i, j] == 0:
         raise DataError(f"{source}: no row answers both '{names[i]}' and '{names[j]}', so their covariance cannot be estimated")
-    mu, sigma, _ = em_saturated(pattern_data(data, weights[answered] if weights is not None else None))
+    try:
+        mu, sigma, _ = em_saturated(pattern_data(data, weights[answered] if weights is not None else None))
+    except EstimationError as error:
+        complete = int(observed.all(axis=1).sum())
+        remedy = ("leave this group out or join it with another (--keep), or analyse fewer items" if group is not None
+                  else "analyse fewer items, or gather rows that answer more of them")
+        raise EstimationError(f"{source}: {error}; {complete} of its {n} rows answer all {p} items. What to try: "
+                              f"{remedy}") from None
     _check_moments(sigma, mu, names, source)
     return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data)
 

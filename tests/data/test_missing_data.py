@@ -200,3 +200,51 @@ def test_satorra_bentler_with_gaps_needs_a_choice(hs_holes):
     with pytest.raises(OptionError, match="whose robust test is Yuan-Bentler"):
         cfa_tool.fit(THREE_FACTORS, hs_holes, test="satorra-bentler")
     assert cfa_tool.fit(THREE_FACTORS, hs_holes, test="satorra-bentler", missing="listwise").robust is not None
+
+
+def _too_few_complete_rows() -> np.ndarray:
+    """8 items with one common factor: 6 complete rows (fewer than the items) and 6 rows that miss one or two items."""
+    rng = np.random.default_rng(1)
+    rows = rng.normal(size=(12, 1)) * rng.uniform(.5, .8, size=8) + rng.normal(size=(12, 8)) * 0.6
+    for r in range(6, 12):
+        rows[r, rng.choice(8, size=1 + r % 2, replace=False)] = np.nan
+    return rows
+
+
+def test_a_saturated_model_without_a_maximum_is_named_with_its_group():
+    rows = _too_few_complete_rows()
+    # Independent of the EM code: the normal log-likelihood of the observed answers (scipy) grows without bound
+    # along covariance matrices that become singular in a direction v orthogonal to the complete rows' span,
+    # so the saturated model has no maximum.
+    from scipy.stats import multivariate_normal
+
+    complete = rows[:6]
+    mu = complete.mean(axis=0)
+    _, _, vt = np.linalg.svd(complete - mu)
+    v = vt[-1]  # the centred complete rows have rank 5 of 8: v is orthogonal to them
+    for row in rows[6:]:  # every incomplete row misses an item that v touches, so its density stays bounded
+        assert np.abs(v[np.isnan(row)]).max() > 1e-2
+
+    def loglik(eps: float) -> float:
+        sigma = np.eye(8) - np.outer(v, v) + eps * np.outer(v, v)
+        total = 0.0
+        for row in rows:
+            seen = ~np.isnan(row)
+            total += multivariate_normal(mu[seen], sigma[np.ix_(seen, seen)]).logpdf(row[seen])
+        return total
+
+    values = [loglik(eps) for eps in (1e-4, 1e-6, 1e-8)]
+    # each step of eps by 1/100 adds 6 x 0.5 x log(100) = 13.8 from the complete rows; the others change little
+    assert all(b > a + 12 for a, b in zip(values, values[1:]))
+
+    with pytest.raises(cfa_tool.errors.EstimationError, match="becoming singular"):
+        em_saturated(pattern_data(rows))
+    frame = pd.DataFrame(rows, columns=[f"y{i}" for i in range(1, 9)])
+    from cfa_tool.data.moments import sample_moments
+
+    with pytest.raises(cfa_tool.errors.EstimationError) as caught:
+        sample_moments(frame, tuple(frame.columns), "small.csv", group="'Audit' of department",
+                       missing=MissingData.FULL_INFORMATION)
+    message = str(caught.value)
+    assert message.startswith("small.csv (group 'Audit' of department): ")
+    assert "6 of its 12 rows answer all 8 items" in message and "leave this group out" in message
