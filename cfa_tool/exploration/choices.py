@@ -56,6 +56,7 @@ class CountNote(Enum):
 
     RULES_DISAGREE = "rules-disagree"
     NEXT_EIGENVALUE_BORDERLINE = "next-eigenvalue-borderline"
+    NEXT_EIGENVALUE_ABOVE_CHANCE = "next-eigenvalue-above-chance"
     NO_FACTOR_ABOVE_CHANCE = "no-factor-above-chance"
     POOR_FIT_AT_RECOMMENDED = "poor-fit-at-recommended"
     IMPROPER_AT_RECOMMENDED = "improper-solution-at-recommended"

@@ -214,9 +214,13 @@ def count_factors(data: CorrelationInput, replications: int = 100, seed: int = 0
     if len({v for v in counts.values() if v is not None}) > 1:
         notes.append(CountNote.RULES_DISAGREE)
     nxt = recommended  # position of the first factor not kept (0-based)
-    if nxt < data.p and (parallel.component_eigenvalues[nxt] > parallel.component_reference_mean[nxt]
-                         or parallel.factor_eigenvalues[nxt] > parallel.factor_reference_mean[nxt]):
-        notes.append(CountNote.NEXT_EIGENVALUE_BORDERLINE)
+    if nxt < data.p:
+        if (parallel.component_eigenvalues[nxt] > parallel.component_reference[nxt]
+                or parallel.factor_eigenvalues[nxt] > parallel.factor_reference[nxt]):
+            notes.append(CountNote.NEXT_EIGENVALUE_ABOVE_CHANCE)  # one series counts another factor
+        elif (parallel.component_eigenvalues[nxt] > parallel.component_reference_mean[nxt]
+              or parallel.factor_eigenvalues[nxt] > parallel.factor_reference_mean[nxt]):
+            notes.append(CountNote.NEXT_EIGENVALUE_BORDERLINE)
     if median == 0:
         notes.append(CountNote.NO_FACTOR_ABOVE_CHANCE)
     at = next((f for f in fits if f.factors == recommended), None)

@@ -37,6 +37,9 @@ NOTE_WORDS = {
     CountNote.NEXT_EIGENVALUE_BORDERLINE: "The next eigenvalue after the recommended number is above the average of the "
                                           "random ones (though not above their 95th percentile): one more factor is "
                                           "borderline.",
+    CountNote.NEXT_EIGENVALUE_ABOVE_CHANCE: "The next eigenvalue after the recommended number is above the 95th "
+                                            "percentile of the random ones in at least one of the two series (see the "
+                                            "eigenvalue table): one more factor deserves a look.",
     CountNote.NO_FACTOR_ABOVE_CHANCE: "No eigenvalue stands above those of random data of the same size: these items may "
                                       "share no common factor at all; one factor is shown for inspection only.",
     CountNote.POOR_FIT_AT_RECOMMENDED: "The recommended solution fits poorly (RMSEA above .08, a convention).",

@@ -116,6 +116,18 @@ def test_weak_factor_is_reported_as_uncertain():
     assert CountNote.RULES_DISAGREE not in strong.notes
 
 
+def test_a_next_eigenvalue_above_the_random_percentile_is_not_called_borderline():
+    # A fourth factor loading .30/.30/.25 (N = 300, seeds 8 to 11 alike): parallel analysis of factors counts 4, of
+    # components 3, the average partial test 3; the recommendation is 3.  The fourth factor eigenvalue exceeds its
+    # random 95th percentile, so the note says so (it said "though not above their 95th percentile" before).
+    found = count_factors(_input(_three_factors(extra=[0.3, 0.3, 0.25], n=300, seed=8)), replications=100, seed=1)
+    assert found.recommended == 3 and found.suggestion(CountRule.PARALLEL_FACTORS) == 4
+    p = found.parallel
+    assert p.factor_eigenvalues[3] > p.factor_reference[3]  # the table the reader sees
+    assert CountNote.NEXT_EIGENVALUE_ABOVE_CHANCE in found.notes
+    assert CountNote.NEXT_EIGENVALUE_BORDERLINE not in found.notes
+
+
 def test_no_structure_is_no_factor_above_chance():
     frame = simulate_cfa(np.zeros((8, 1)), np.eye(1), np.eye(8), n=400, seed=3)
     found = count_factors(_input(frame), replications=100, seed=2)
