@@ -32,7 +32,8 @@ def header_lines(result) -> list[str]:
     methods = ", ".join(METHOD_LABELS[m] for m in result.methods)
     first = f"{result.id_name}, then " if result.id_name else ""
     scored = [f"Scored data: {result.scored_source} (with the parameters of the fit above)"] if result.scored_source else []
-    return [f"Model file: {fit.model_source}", f"Data: {fit.data.source}; the model was fitted to {fit.n_obs} rows", *scored,
+    return [f"Model file: {fit.model_source}", f"Data: {fit.data.source}; the model was fitted to {fit.n_obs} rows",
+            f"Estimation of the fit: {fit.estimator}", *scored,
             f"Scores ({methods}) of {result.rows} rows, one per row of the data in the file's order; columns: "
             f"{first}one per factor" + ("" if not result.standard_errors else
                                         " with its posterior standard deviation" if ScoreMethod.EXPECTED_A_POSTERIORI
@@ -136,8 +137,14 @@ def score_tables(result) -> list[ReportTable]:
     return out
 
 
+#: how the fit's own notes are introduced when the scores are of other data or from an earlier fit
+ABOUT_THE_FIT = "About the fit (not the scored data): "
+
+
 def notes(result) -> list[str]:
-    return list(result.fit.warnings) + list(result.notes)
+    """The fit's notes (said to be about the fit when other data are scored), then the scores' own."""
+    about = ABOUT_THE_FIT if result.scored_source else ""
+    return [about + w for w in result.fit.warnings] + list(result.notes)
 
 
 def scores_report(result):

@@ -251,7 +251,7 @@ def test_check_states_the_design_as_the_fit_uses_it(survey):
     assert few.summary().startswith("Caution: Only 10 clusters in 'unit'")
 
 
-def test_scores_fit_under_the_design_and_score_every_row(survey, tmp_path):
+def test_scores_fit_under_the_design_and_score_every_row(survey, tmp_path, capsys):
     # The parameters are the design's (those of the weighted fit); a row's score follows from its answers and
     # those parameters, so scoring the weighted fit's parameters with a plain scoring of the same rows gives the
     # same numbers: checked by giving the fit JSON of the weighted fit to --from-fit on continuous items.
@@ -271,8 +271,14 @@ def test_scores_fit_under_the_design_and_score_every_row(survey, tmp_path):
     assert main(["fit", str(tmp_path / "m.cfa"), "--data", str(path), "--weights", "w", "--cluster", "unit",
                  "--json", str(fit_json)]) == 0
     again = tmp_path / "again.csv"
+    capsys.readouterr()
     assert main(["scores", str(tmp_path / "m.cfa"), "--data", str(path), "--from-fit", str(fit_json),
                  "--output", str(again)]) == 0
+    said = " ".join(capsys.readouterr().out.split())
+    # the report says how the earlier fit was made (weighted, clustered), and its notes are said to be about it
+    assert "Estimation of the fit: " in said and "weights (w;" in said
+    saved_notes = json.loads(fit_json.read_text())["warnings"]
+    assert all(f"About the fit (not the scored data): {' '.join(w.split())}" in said for w in saved_notes)
     np.testing.assert_allclose(pd.read_csv(again).iloc[:, 0], weighted.table.iloc[:, 0], rtol=1e-6)
     assert json.loads(fit_json.read_text())["design"]["weights"] == "w"
     ordinal = cfa_tool.scores(ONE_FACTOR, survey, ordinal="all", weights="freq", weight_kind="frequency")
