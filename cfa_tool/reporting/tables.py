@@ -639,8 +639,18 @@ def item_table(result) -> ReportTable:
     if rest:
         note += (" Item-rest r: the correlation of the (keyed) item with the keyed sum of the other items of its "
                  "factor (corrected item-total correlation).")
+    weights = _weights_column(result)
+    if weights is not None:
+        note += (f" Mean and SD weighted by {weights}" + ("; N, skewness, kurtosis and item-rest r count each row once."
+                                                          if shape or rest else "."))
     return _table("items", "Items: descriptive statistics (analysed rows)", columns, body, note,
                   values=([c for c, _ in columns], values))
+
+
+def _weights_column(result) -> str | None:
+    """The column of row weights the fit used (None without weights)."""
+    design = getattr(result, "design", None)
+    return design.columns.weights if design is not None else None
 
 
 def category_table(result, group: int = 0) -> ReportTable | None:
@@ -661,7 +671,9 @@ def category_table(result, group: int = 0) -> ReportTable | None:
     return _table(f"categories_{group}", f"Answers per category{where} (rows analysed)",
                   [("Item", "l")] + [(str(k + 1), "r") for k in range(width)], rows,
                   "Each cell: the answer value, the rows giving it and their share. Categories nobody chose do not "
-                  "appear (their threshold cannot be estimated).",
+                  "appear (their threshold cannot be estimated)." + ("" if _weights_column(result) is None else
+                  f" Rows are counted once each, unweighted; the thresholds use the shares weighted by "
+                  f"{_weights_column(result)}."),
                   values=(["Item"] + [f"Category {k + 1} rows" for k in range(width)], values))
 
 

@@ -72,3 +72,23 @@ def test_category_frequencies_of_ordinal_items(ordinal_fit):
     assert list(row[1:]) == [f"{v:g}: {c} ({100 * c / len(data):.0f}%)" for v, c in counts.items()]
     out = result.to_dict()["data"]["category_counts"]["y3"]
     assert [(c["value"], c["rows"]) for c in out] == [(float(v), int(c)) for v, c in counts.items()]
+
+
+def test_weighted_descriptives_say_what_is_weighted():
+    """With sampling weights the items' means and SDs are weighted (checked with numpy's weighted average), the
+    answer counts are rows counted once; the tables' notes say which is which."""
+    import pandas as pd
+
+    rng = np.random.default_rng(1)
+    f = rng.normal(size=400)
+    answers = np.clip(np.round(3 + f[:, None] * 0.8 + rng.normal(size=(400, 4))), 1, 5)
+    data = pd.DataFrame(answers, columns=list("abcd")).assign(w=np.where(answers[:, 0] > 3, 5.0, 1.0))
+    result = cfa_tool.fit("factor f: a, b, c, d\n", data, weights="w", ordinal="all")
+    items = T.item_table(result)
+    assert result.groups[0].data.means[0] == pytest.approx(np.average(answers[:, 0], weights=data["w"]), rel=1e-12)
+    assert "Mean and SD weighted by w" in items.note
+    counts = T.category_table(result)
+    assert counts.values[0][1] == int((answers[:, 0] == 1).sum())  # item a, first category: rows, unweighted
+    assert "counted once each, unweighted" in counts.note
+    plain = cfa_tool.fit("factor f: a, b, c, d\n", data.drop(columns="w"), ordinal="all")
+    assert "weighted" not in T.item_table(plain).note and "weighted" not in T.category_table(plain).note
