@@ -27,7 +27,10 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
     sigma = np.diag(np.where(var > 0, var, 1.0))
     groups = list(missing_groups(mask))  # rows grouped by how many answers they miss, with the columns they miss
     for iteration in range(1, max_iterations + 1):
-        precision = np.linalg.inv(sigma)
+        try:
+            precision = np.linalg.inv(sigma)
+        except np.linalg.LinAlgError:
+            raise SingularCovariance(sigma, mu) from None
         dev = np.where(mask, rows - mu, 0.0)
         completed = mu + dev
         extra = np.zeros((p, p))
@@ -49,6 +52,15 @@ def em_saturated(data: PatternData, max_iterations: int = 2000, tolerance: float
     if _smallest_share(sigma) < 1e-5:
         raise EstimationError(_no_maximum(sigma, max_iterations))
     raise EstimationError(f"the saturated model for the incomplete data did not converge in {max_iterations} EM iterations")
+
+
+class SingularCovariance(EstimationError):
+    """The EM iterate's covariance matrix is exactly singular (a constant item, or an item that is an exact combination
+    of others among the answered values); ``sigma`` and ``mu`` let the caller name the items."""
+
+    def __init__(self, sigma: np.ndarray, mu: np.ndarray):
+        super().__init__("the covariance matrix of the saturated model is singular")
+        self.sigma, self.mu = sigma, mu
 
 
 def _no_maximum(sigma: np.ndarray, iterations: int) -> str:

@@ -219,7 +219,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
 
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int,
                         weights: np.ndarray | None = None) -> SampleMoments:
-    from cfa_tool.data.em import em_saturated
+    from cfa_tool.data.em import SingularCovariance, em_saturated
     from cfa_tool.data.patterns import pattern_data
 
     answered = ~np.isnan(values).all(axis=1)
@@ -236,8 +236,14 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     i, j = np.unravel_index(np.argmin(together), together.shape)
     if together[i, j] == 0:
         raise DataError(f"{source}: no row answers both '{names[i]}' and '{names[j]}', so their covariance cannot be estimated")
+    # constant columns (and spreads too small or too unequal) among the answers given, named as complete rows do
+    _check_moments(np.diag(np.nanvar(data, axis=0)), np.nanmean(data, axis=0), names, source)
     try:
         mu, sigma, _ = em_saturated(pattern_data(data, weights[answered] if weights is not None else None))
+    except SingularCovariance as singular:  # a constant item or an exact combination: name them as complete rows do
+        _check_moments(singular.sigma, singular.mu, names, source)
+        raise DataError(f"{source}: {singular}: an item is constant or an exact combination of others among the answers "
+                        f"given") from None
     except EstimationError as error:
         complete = int(observed.all(axis=1).sum())
         remedy = ("leave this group out or join it with another (--keep), or analyse fewer items" if group is not None

@@ -248,3 +248,16 @@ def test_a_saturated_model_without_a_maximum_is_named_with_its_group():
     message = str(caught.value)
     assert message.startswith("small.csv (group 'Audit' of department): ")
     assert "6 of its 12 rows answer all 8 items" in message and "leave this group out" in message
+
+
+@pytest.mark.parametrize("change, words", [
+    (lambda d: d.assign(x5=3.0), r"column 'x5' has the same value \(3\) in every row used"),
+    (lambda d: d.assign(x5=d["x4"]), "the covariance matrix is singular: the columns"),
+])
+def test_a_constant_or_collinear_item_with_gaps_is_named_not_a_traceback(hs_holes, change, words):
+    # With complete rows these errors come from the sample covariance matrix; with gaps from the EM iterate, which
+    # is exactly singular at its first step (a constant column has variance 0; x5 = x4 among the answers given).
+    data = change(hs_holes.copy())
+    data.loc[data["x4"].isna(), "x5"] = np.nan  # where x4 is missing, so is its copy
+    with pytest.raises(cfa_tool.errors.DataError, match=words):
+        cfa_tool.fit(THREE_FACTORS, data, missing="full-information")
