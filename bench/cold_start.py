@@ -1,7 +1,9 @@
 """The first fit of a fresh process: the command line's cold start, and the Python API's import plus first fit
 against semopy's, each in new processes taking turns (so that a change in the machine's load affects them alike).
 
-    python bench/cold_start.py [--runs 9] [--imports]   # --imports: the slowest imports of one command-line run
+    python bench/cold_start.py [--runs 9] [--imports] [--stages 5]
+        # --imports: the slowest imports of one command-line run
+        # --stages N: the processor time of each stage of the command's start, median of N fresh processes
 
 Case 1 (Holzinger-Swineford, 9 items, N = 301), from a CSV file:
 
@@ -51,6 +53,53 @@ semopy.calc_stats(model)
 """
 
 
+STAGES = """
+import contextlib, io, json, sys, time
+marks, last = {}, time.process_time()
+
+
+def mark(name):
+    global last
+    now = time.process_time()
+    marks[name] = 1000.0 * (now - last)
+    last = now
+
+
+import numpy
+mark("numpy")
+import pandas
+mark("pandas")
+import scipy.linalg
+mark("scipy.linalg (LAPACK; with scipy's array-API layer)")
+import scipy.special
+mark("scipy.special (p-values, the RMSEA interval)")
+import lark
+mark("lark")
+import cfa_tool
+cfa_tool.parse_model(open(sys.argv[1]).read())
+mark("the model grammar's parser and the first model parsed")
+import rich.console, rich.table
+mark("rich")
+import cfa_tool.cli, cfa_tool.commands.fit, cfa_tool.pipeline.inputs, cfa_tool.reporting.terminal
+mark("the tool's own modules")
+for name in ("the first fit and its terminal report", "a second fit and report in the same process"):
+    with contextlib.redirect_stdout(io.StringIO()):
+        cfa_tool.cli.main(["fit", sys.argv[1], "--data", sys.argv[2]])
+    mark(name)
+print(json.dumps(marks))
+"""
+
+
+def stage_times(script: Path, model: Path, data: Path, env: dict, runs: int) -> dict[str, float]:
+    """Median processor milliseconds of each stage of the command's start over ``runs`` fresh processes."""
+    found = []
+    for _ in range(runs):
+        done = subprocess.run([sys.executable, str(script), str(model), str(data)], env=env, capture_output=True,
+                              text=True, check=True)
+        found.append(json.loads(done.stdout.strip().splitlines()[-1]))
+    return {name: statistics.median(run[name] for run in found) for name in found[0]}
+
+
 def run_child(command: list[str], env: dict) -> tuple[float, float]:
     """(wall seconds, processor seconds of the child) of one run; a failing child stops the benchmark."""
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
@@ -67,6 +116,8 @@ def main() -> None:
     parser = argparse.ArgumentParser()
     parser.add_argument("--runs", type=int, default=9)
     parser.add_argument("--imports", action="store_true", help="also list the slowest imports of one command-line run")
+    parser.add_argument("--stages", type=int, default=0, metavar="N",
+                        help="also the processor time of each stage of the start (median of N fresh processes)")
     args = parser.parse_args()
     from semopy.examples import holzinger39
 
@@ -77,6 +128,7 @@ def main() -> None:
         model.write_text(MODEL)
         api.write_text(API)
         ref.write_text(SEMOPY)
+        (tmp / "stages.py").write_text(STAGES)
         env = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
         env.update(PYTHONPATH=str(ROOT), PYTHONPYCACHEPREFIX=str(tmp / "bytecode"), OPENBLAS_NUM_THREADS="1")
         commands = {
@@ -109,10 +161,18 @@ def main() -> None:
             print("slowest imports (cumulative microseconds):")
             for micro, name in top[:25]:
                 print(f"  {micro:9d} {name}")
+        stages = {}
+        if args.stages:
+            stages = stage_times(tmp / "stages.py", model, data, env, args.stages)
+            print(f"stages of the command's start, processor milliseconds (median of {args.stages} runs; "
+                  f"load average {os.getloadavg()[0]:.1f}):")
+            for name, ms in stages.items():
+                print(f"  {ms:7.1f}  {name}")
+            print(f"  {sum(list(stages.values())[:-1]):7.1f}  up to the first report")
         out = ROOT / "bench" / "results"
         out.mkdir(exist_ok=True)
         (out / "cold_start.json").write_text(json.dumps({"load_average": [load_before, load_after], "runs": args.runs,
-                                                         "rows": rows}, indent=2))
+                                                         "rows": rows, "stages_ms": stages}, indent=2))
 
 
 if __name__ == "__main__":

@@ -48,14 +48,16 @@ class _Once(argparse.Action):
         setattr(namespace, self.dest, values)
 
 
-def build_parser() -> argparse.ArgumentParser:
+def build_parser(command: str | None = None) -> argparse.ArgumentParser:
+    """The parser of every command; given the ``command`` a run names, only that command's (the others'
+    modules and options would only add to the start)."""
     parser = _Parser(prog=PROG, description="Confirmatory factor analysis: fit a model file to a data set.",
                      allow_abbrev=False)
     parser.add_argument("--version", action="version", version=_version())
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     from cfa_tool import commands
 
-    commands.add_parsers(sub)  # one module per command (cfa_tool/commands/)
+    commands.add_parsers(sub, command)  # one module per command (cfa_tool/commands/)
     return parser
 
 
@@ -66,8 +68,8 @@ def _version() -> str:
 
 
 def main(argv: list[str] | None = None) -> int:
-    parser = build_parser()
     argv = list(sys.argv[1:] if argv is None else argv)
+    parser = build_parser(argv[0] if argv else None)
     for k, arg in enumerate(argv[:-1]):  # '--missing-codes -99,999': a value that starts with '-'
         if arg == "--missing-codes" and argv[k + 1].startswith("-"):
             argv[k : k + 2] = [f"{arg}={argv[k + 1]}"]

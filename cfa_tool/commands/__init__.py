@@ -16,8 +16,10 @@ MODULES = {name: f"cfa_tool.commands.{name.replace('-', '_')}" for name in (
     "cutoffs", "demo", "scores", "explore", "align", "report")}
 
 
-def add_parsers(sub) -> None:
-    for module in MODULES.values():
+def add_parsers(sub, command: str | None = None) -> None:
+    """Every command's subparser, or only ``command``'s when it names one (a run needs no other; an unknown
+    word, help or nothing gets them all, so that the help and the error list every command)."""
+    for module in ([MODULES[command]] if command in MODULES else MODULES.values()):
         import_module(module).add_parser(sub)
 
 

@@ -4,23 +4,39 @@ rotated loadings, and a draft model in this program's model language.
 Pure functions on a :class:`CorrelationInput` (built from ``SampleMoments`` or
 ``OrdinalMoments``); :func:`explore_correlations` runs them in order.  Nothing here reads files
 or formats reports.
+
+The names below load their module on first use: a fit's report needs only the vocabulary in
+``exploration.choices``, and importing every module of the package would add to each start of the command.
 """
 
-from cfa_tool.exploration.analysis import Exploration, ExploreSettings, explore_correlations
-from cfa_tool.exploration.choices import (CorrelationKind, CountNote, CountRule, ErrorsUnavailable, ExtractionMethod,
-                                          FitStatistic, Placement, RotationMethod)
-from cfa_tool.exploration.correlations import (CorrelationInput, from_correlations, from_covariance, from_ordinal_moments,
-                                               from_sample_moments)
-from cfa_tool.exploration.draft import DraftModel, draft_model
-from cfa_tool.exploration.extraction import FactorSolution, SolutionFit, extract
-from cfa_tool.exploration.factor_count import FactorCount, average_partial, count_factors, parallel_analysis
-from cfa_tool.exploration.loading_errors import LoadingErrors, loading_errors
-from cfa_tool.exploration.rotation import RotatedSolution, RotationSpec, rotate
+from __future__ import annotations
 
-__all__ = [
-    "CorrelationInput", "CorrelationKind", "CountNote", "CountRule", "DraftModel", "ErrorsUnavailable", "Exploration",
-    "ExploreSettings", "ExtractionMethod", "FactorCount", "FactorSolution", "FitStatistic", "LoadingErrors", "Placement",
-    "RotatedSolution", "RotationMethod", "RotationSpec", "SolutionFit", "average_partial",
-    "count_factors", "draft_model", "explore_correlations", "extract", "from_correlations", "from_covariance",
-    "from_ordinal_moments", "from_sample_moments", "loading_errors", "parallel_analysis", "rotate",
-]
+import importlib
+
+# public name -> the module of this package that holds it
+_HOME = {
+    **dict.fromkeys(("Exploration", "ExploreSettings", "explore_correlations"), "analysis"),
+    **dict.fromkeys(("CorrelationKind", "CountNote", "CountRule", "ErrorsUnavailable", "ExtractionMethod", "FitStatistic",
+                     "Placement", "RotationMethod"), "choices"),
+    **dict.fromkeys(("CorrelationInput", "from_correlations", "from_covariance", "from_ordinal_moments",
+                     "from_sample_moments"), "correlations"),
+    **dict.fromkeys(("DraftModel", "draft_model"), "draft"),
+    **dict.fromkeys(("FactorSolution", "SolutionFit", "extract"), "extraction"),
+    **dict.fromkeys(("FactorCount", "average_partial", "count_factors", "parallel_analysis"), "factor_count"),
+    **dict.fromkeys(("LoadingErrors", "loading_errors"), "rotated_errors"),
+    **dict.fromkeys(("RotatedSolution", "RotationSpec", "rotate"), "rotation"),
+}
+
+__all__ = sorted(_HOME)
+
+
+def __getattr__(name: str):
+    if name not in _HOME:
+        raise AttributeError(f"module 'cfa_tool.exploration' has no attribute '{name}'")
+    value = getattr(importlib.import_module(f"cfa_tool.exploration.{_HOME[name]}"), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(_HOME))

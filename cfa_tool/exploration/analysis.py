@@ -21,7 +21,7 @@ from cfa_tool.exploration.correlations import CorrelationInput
 from cfa_tool.exploration.draft import DEFAULT_THRESHOLD, DraftModel, draft_model
 from cfa_tool.exploration.extraction import FactorSolution, check_factor_count, extract
 from cfa_tool.exploration.factor_count import FactorCount, count_factors
-from cfa_tool.exploration.loading_errors import LoadingErrors, loading_errors
+from cfa_tool.exploration.rotated_errors import LoadingErrors, loading_errors
 from cfa_tool.exploration.rotation import RotatedSolution, RotationSpec, rotate
 
 

@@ -38,7 +38,7 @@ from cfa_tool.language.spec import (
     Spec,
     ValueSetting,
 )
-from cfa_tool.resources import resource_dir
+from cfa_tool.language.grammar_tables import model_parser
 
 STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale", "in",
                    "invariance", "noninvariant", "ordinal", "reversed", "method", "exploratory", "near")
@@ -67,8 +67,7 @@ def _clip(text: object, width: int = 40) -> str:
 
 @lru_cache(maxsize=1)
 def _parser() -> Lark:
-    grammar = (resource_dir("grammar") / "model.lark").read_text(encoding="utf-8")
-    return Lark(grammar, parser="lalr", propagate_positions=True, maybe_placeholders=False)
+    return model_parser()
 
 
 def read_model_file(path: str | Path) -> Spec:

@@ -1,6 +1,6 @@
 """Standard errors of rotated loadings and factor correlations (the constrained delta method).
 
-Two checks from outside the formulas in loading_errors.py:
+Two checks from outside the formulas in rotated_errors.py:
 
 * the delta method done by brute force: the whole estimator (extraction, rotation, orientation)
   as a function of the correlations, differentiated by central differences and combined with the

@@ -1,5 +1,5 @@
 """The standard errors of rotated loadings stand beside the loadings in every explore report (terminal, HTML,
-Markdown), with their method stated; the values are those of exploration.loading_errors (checked against a
+Markdown), with their method stated; the values are those of exploration.rotated_errors (checked against a
 bootstrap and finite differences in test_exploration_standard_errors.py)."""
 
 from __future__ import annotations

@@ -1,0 +1,126 @@
+"""The parser tables shipped beside the grammar (grammar/model-tables.json) are the tables lark builds from
+grammar/model.lark: the test rebuilds them with lark and compares rules, terminals, options and the LALR table.
+
+lark numbers its states in an order that changes with Python's string hashing, so the two tables are compared
+after renumbering each state by a breadth-first walk from the start state (tokens in sorted order).
+After editing the grammar or upgrading lark: ``python grammar/write_tables.py``.
+"""
+
+from __future__ import annotations
+
+import json
+from collections import deque
+
+import lark
+import pytest
+from lark import Lark
+
+from cfa_tool.language import grammar_tables
+from cfa_tool.language.parser import _parser
+from cfa_tool.resources import resource_dir
+
+REGENERATE = "run 'python grammar/write_tables.py' after editing the grammar or upgrading lark"
+
+
+def _grammar() -> str:
+    return (resource_dir("grammar") / grammar_tables.GRAMMAR_FILE).read_text(encoding="utf-8")
+
+
+def _shipped() -> str:
+    return (resource_dir("grammar") / grammar_tables.TABLES_FILE).read_text(encoding="utf-8")
+
+
+def _shipped_parser() -> tuple[dict, Lark]:
+    found = json.loads(_shipped(), object_hook=grammar_tables._untagged)
+    return found, Lark.load(found["parser"])
+
+
+def _rule(rule) -> tuple:
+    return (rule.origin.name, tuple(s.name for s in rule.expansion), rule.alias, rule.order,
+            (rule.options.keep_all_tokens, rule.options.expand1, rule.options.priority))
+
+
+def _canonical_table(parser: Lark) -> list:
+    """The LALR table with states renumbered in the order a breadth-first walk from the start state meets them."""
+    table = parser.parser.parser.parser.parse_table
+    (start,) = table.start_states.values()
+    number, order, queue = {start: 0}, [], deque([start])
+    while queue:
+        state = queue.popleft()
+        row = []
+        for token in sorted(table.states[state]):
+            kind, target = table.states[state][token]
+            if kind.name == "Shift":
+                if target not in number:
+                    number[target] = len(number)
+                    queue.append(target)
+                row.append((token, "shift", number[target]))
+            else:
+                row.append((token, "reduce", _rule(target)))
+        order.append(row)
+    assert len(number) == len(table.states), "states the start state does not reach"
+    (end,) = table.end_states.values()
+    return [order, number[end]]
+
+
+def _description(parser: Lark) -> dict:
+    options = {k: parser.options.options[k] for k in ("parser", "lexer", "propagate_positions", "maybe_placeholders",
+                                                       "keep_all_tokens", "start", "priority", "ambiguity")}
+    return {
+        "options": options,
+        "rules": sorted(_rule(r) for r in parser.rules),
+        "terminals": sorted((t.name, t.pattern.type, t.pattern.value, tuple(t.pattern.flags), t.priority)
+                            for t in parser.terminals),
+        "ignore": sorted(parser.lexer_conf.ignore),
+        "table": _canonical_table(parser),
+    }
+
+
+def test_shipped_tables_are_the_grammars_tables():
+    header, shipped = _shipped_parser()
+    assert header["grammar_sha256"] == grammar_tables._header(_grammar())["grammar_sha256"], REGENERATE
+    rebuilt = grammar_tables.build_parser(_grammar())
+    assert _description(shipped) == _description(rebuilt), REGENERATE
+
+
+def test_the_comparison_sees_a_changed_grammar():
+    """The canonical description is not blind: a grammar with one more statement word differs."""
+    changed = _grammar().replace('"factor"', '"factor" | "construct"', 1)
+    assert changed != _grammar()
+    assert _description(grammar_tables.build_parser(changed)) != _description(grammar_tables.build_parser(_grammar()))
+
+
+def test_the_tool_uses_the_shipped_tables():
+    header, _ = _shipped_parser()
+    if header["lark_version"] != lark.__version__:
+        pytest.skip(f"tables written with lark {header['lark_version']}, lark {lark.__version__} installed: "
+                    f"the tool builds the tables at its start; {REGENERATE}")
+    assert grammar_tables.saved_parser(_grammar(), _shipped()) is not None
+
+
+def test_other_grammar_or_damaged_tables_fall_back_to_building():
+    assert grammar_tables.saved_parser(_grammar() + "\n// edited\n", _shipped()) is None
+    assert grammar_tables.saved_parser(_grammar(), "not a tables file") is None
+    assert grammar_tables.saved_parser(_grammar(), _shipped()[:200]) is None
+    assert grammar_tables.saved_parser(_grammar(), "[1, 2]") is None
+
+
+def test_the_json_tagging_reads_back_exactly():
+    """lark's serialisation holds tuples and dictionaries with number keys, which plain JSON would turn into
+    lists and text keys; the tagged form gives back equal objects of the same types."""
+    serialised = grammar_tables.serialised_parser(grammar_tables.build_parser(_grammar()))
+    back = json.loads(json.dumps(grammar_tables._tagged(serialised)), object_hook=grammar_tables._untagged)
+    assert back == serialised
+    assert json.loads(json.dumps(serialised)) != serialised  # plain JSON would not do
+    sample = {"a": (1, (2, "x")), 3: [None, True], (4, 5): {"b": ()}}
+    assert json.loads(json.dumps(grammar_tables._tagged(sample)), object_hook=grammar_tables._untagged) == sample
+
+
+def test_shipped_and_rebuilt_parsers_read_the_example_models_alike():
+    _, shipped = _shipped_parser()
+    rebuilt = grammar_tables.build_parser(_grammar())
+    models = sorted(resource_dir("models").glob("*.cfa"))
+    assert models
+    for path in models:
+        text = path.read_text(encoding="utf-8")
+        assert shipped.parse(text) == rebuilt.parse(text) == _parser().parse(text), path.name
