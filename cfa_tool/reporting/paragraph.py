@@ -61,7 +61,7 @@ def _estimator_phrase(result) -> str:
 
 def _test_phrase(test: FitTest) -> str:
     if test is FitTest.SCALE_SHIFTED:
-        return "mean-and-variance adjusted (scale-shifted) chi-square test"
+        return test.phrase
     return f"{test.label} scaled chi-square test"
 
 
@@ -259,10 +259,9 @@ def _fit_sentence(result) -> str:
     if result.robust is not None:
         r = result.robust
         rl, rh = r.rmsea_robust_ci90
+        pieces = ", ".join(f"{name} {value:.3f}" for name, value in r.pieces)
         return (f"The {_test_phrase(r.test)} gave {CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
-                + (f"(scale {r.scale:.3f}, shift {r.shift:.3f}); robust CFI" if r.scale is not None else
-                   f"(scaling factor {r.scaling_factor:.3f}); robust CFI")
-                + f" = {unit(r.cfi_robust)}, robust TLI = "
+                f"({pieces}); robust CFI = {unit(r.cfi_robust)}, robust TLI = "
                 f"{unit(r.tli_robust)}, robust RMSEA = {unit(r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], "
                 f"SRMR = {unit(f.srmr)}.")
     return (f"The model fit was {CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {unit(f.cfi)}, "

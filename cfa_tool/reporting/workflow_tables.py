@@ -5,7 +5,7 @@ every writer draws.  Problems of a solution come first; the cautions come last."
 from __future__ import annotations
 
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
-from cfa_tool.method import MissingData
+from cfa_tool.method import ADJUSTED_TEST, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.numbers import missing, num, p_value, short, signed, unit
@@ -43,18 +43,27 @@ def _fit_notice(result) -> ProblemNotice | None:
 
 _COMPARISON_ROWS = ("Admissible", "Free parameters", "Chi-square", "df", "p", "CFI", "TLI", "RMSEA",
                     "  90% interval", "SRMR", "AIC", "BIC")
-_ROBUST_ROWS = ("Scaled chi-square", "  scaling factor", "  p", "Robust CFI", "Robust TLI", "Robust RMSEA",
-                "  90% interval")
 _COMPARISON_VALUES = ("Admissible", "Free parameters", "Chi-square", "df", "p", "CFI", "TLI", "RMSEA",
                       "RMSEA 90% lower", "RMSEA 90% upper", "SRMR", "AIC", "BIC")
-_ROBUST_VALUES = ("Scaled chi-square", "Scaling factor", "Scaled p", "Robust CFI", "Robust TLI", "Robust RMSEA",
-                  "Robust RMSEA 90% lower", "Robust RMSEA 90% upper")
 
 
-def _comparison_cells(r, robust_rows: bool) -> tuple[list[str], list]:
-    """A model's column of the comparison table, as text and as numbers."""
-    width = len(_COMPARISON_ROWS) + (len(_ROBUST_ROWS) if robust_rows else 0)
-    values_width = len(_COMPARISON_VALUES) + (len(_ROBUST_VALUES) if robust_rows else 0)
+def _robust_rows(test) -> tuple[str, ...]:
+    """The rows of a robust test in the comparison table; its pieces named as the fit's table names them."""
+    return (f"Scaled chi-square ({test.label})", f"  {test.correction}", "  p", "Robust CFI", "Robust TLI",
+            "Robust RMSEA", "  90% interval")
+
+
+def _robust_values(test) -> tuple[str, ...]:
+    return ("Scaled chi-square", *(name.capitalize() for name in test.pieces), "Scaled p", "Robust CFI", "Robust TLI",
+            "Robust RMSEA", "Robust RMSEA 90% lower", "Robust RMSEA 90% upper")
+
+
+def _comparison_cells(r, test) -> tuple[list[str], list]:
+    """A model's column of the comparison table, as text and as numbers; ``test``: the robust test of the
+    comparison (None without one)."""
+    robust_rows = test is not None
+    width = len(_COMPARISON_ROWS) + (len(_robust_rows(test)) if robust_rows else 0)
+    values_width = len(_COMPARISON_VALUES) + (len(_robust_values(test)) if robust_rows else 0)
     if r.fit is None or not r.converged:
         return [_admissible_cell(r)] + [""] * (width - 1), [_admissible_cell(r)] + [None] * (values_width - 1)
     f = r.fit
@@ -68,14 +77,14 @@ def _comparison_cells(r, robust_rows: bool) -> tuple[list[str], list]:
     if robust_rows:
         rb = r.robust
         if rb is None:
-            cells += [""] * len(_ROBUST_ROWS)
-            values += [None] * len(_ROBUST_VALUES)
+            cells += [""] * len(_robust_rows(test))
+            values += [None] * len(_robust_values(test))
         else:
             rl, rh = rb.rmsea_robust_ci90
-            cells += [f"{rb.chi_square_scaled:.3f}", num(rb.scaling_factor), p_value(rb.p_value_scaled),
+            cells += [f"{rb.chi_square_scaled:.3f}", T.correction_text(rb), p_value(rb.p_value_scaled),
                       unit(rb.cfi_robust), unit(rb.tli_robust), unit(rb.rmsea_robust), f"[{unit(rl)}, {unit(rh)}]"]
-            values += [rb.chi_square_scaled, rb.scaling_factor, rb.p_value_scaled, rb.cfi_robust, rb.tli_robust,
-                       rb.rmsea_robust, rl, rh]
+            values += [rb.chi_square_scaled, *(value for _, value in rb.pieces), rb.p_value_scaled, rb.cfi_robust,
+                       rb.tli_robust, rb.rmsea_robust, rl, rh]
     return cells, values
 
 
@@ -118,14 +127,13 @@ def comparison_report(comparison) -> Report:
                      f"answer on any model's variables left out).")
     lines = (rows_line, *_design_lines(comparison.results[0]))
     # one column per model, one row per index: readable in 80 columns for the usual two to four models
-    robust_rows = any(r.robust is not None for r in comparison.results)
-    cells = [_comparison_cells(r, robust_rows) for r in comparison.results]
-    tests = sorted({r.robust.test.label for r in comparison.results if r.robust is not None})
-    scaled = f"Scaled chi-square ({', '.join(tests)})" if tests else _ROBUST_ROWS[0]  # the robust test named
-    labels = _COMPARISON_ROWS + ((scaled, *_ROBUST_ROWS[1:]) if robust_rows else ())
+    # every model of a comparison has the same robust test (or none): the estimator and rows are shared
+    test = next((r.robust.test for r in comparison.results if r.robust is not None), None)
+    cells = [_comparison_cells(r, test) for r in comparison.results]
+    labels = _COMPARISON_ROWS + (_robust_rows(test) if test is not None else ())
     rows = [[label, *[c[0][k] for c in cells]] for k, label in enumerate(labels)]
     bad = any(r.converged and not r.admissible for r in comparison.results)
-    value_columns = ["Model", *_COMPARISON_VALUES, *(_ROBUST_VALUES if robust_rows else ())]
+    value_columns = ["Model", *_COMPARISON_VALUES, *(_robust_values(test) if test is not None else ())]
     tables = [_table("model_fit", "Fit of each model", [("", "l")] + [(name, "r") for name in comparison.names], rows,
                      flagged=(0,) if bad else (),
                      values=(value_columns, [[name, *c[1]] for name, c in zip(comparison.names, cells)]))]
@@ -183,10 +191,10 @@ CONFIGURAL_NOTE = ("The configural model holds when it fits by the guide values 
                    "Bentler 1999). Change-in-fit guides are common practice: CFI falling by no more than .010 (Cheung & "
                    "Rensvold 2002), RMSEA rising by less than .015, SRMR by less than .030 for loadings and .010 after "
                    "(Chen 2007). All guides are conventions, not laws.")
-ADJUSTED_NOTE = ("Ordinal items: chi-square, CFI and RMSEA come from the scale-shifted adjusted statistic, and each "
-                 "difference test is adjusted in the same way (Asparouhov & Muthen 2006). The adjusted statistic's "
-                 "scale and shift are estimated anew for each model, so it can fall when constraints are added: "
-                 "compare steps by the difference tests, not by the statistics or indices of the levels.")
+ADJUSTED_NOTE = (f"Ordinal items: chi-square, CFI and RMSEA come from the {FitTest.SCALE_SHIFTED.label} statistic, and "
+                 f"each difference test is the {DifferenceMethod.SCALE_SHIFTED}. The adjusted statistic's "
+                 f"{FitTest.SCALE_SHIFTED.correction} are estimated anew for each model, so it can fall when constraints "
+                 f"are added: compare steps by the difference tests, not by the statistics or indices of the levels.")
 
 
 def invariance_report(result) -> Report:
@@ -331,8 +339,8 @@ def replication_report(replications) -> Report:
                                    f"{rep.cvi_saturated:.4f} (smaller is better).", tuple(flagged),
                              values=(["Check", "N", "Chi-square", "df", "p", "RMSEA", "CFI"], values)))
     if any(rep.adjusted for rep in reps):
-        notes.append("Ordinal items: every chi-square, RMSEA and CFI is the scale-shifted (mean-and-variance adjusted) "
-                     "one of the least-squares fit; the tight check compares the validation sample's polychoric "
+        notes.append(f"Ordinal items: every chi-square, RMSEA and CFI is the {FitTest.SCALE_SHIFTED.label} one of "
+                     "the least-squares fit; the tight check compares the validation sample's polychoric "
                      "correlations with those the calibration estimates imply, and the cross-validation index is the "
                      "least-squares discrepancy with the validation sample's weights.")
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
@@ -439,7 +447,7 @@ def cutoffs_report(cut) -> Report:
                   f"and RMSEA, of this model and of every sample, come from the {cut.statistic} statistic; SRMR from "
                   f"the polychoric correlations.",)
         if cut.correct_rejected is not None:
-            lines += (f"That adjusted test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
+            lines += (f"That test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
                       f"{cut.converged_correct} samples drawn from it (nominal 5%).",)
     return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", _fit_notice(result), lines,
                   (table,), tuple(notes) + tuple(result.warnings), ("These cutoffs hold for this model, sample size and kind of misspecification "
@@ -476,7 +484,7 @@ def _ordinal_power_lines(result) -> list[str]:
         return []
     return [f"Ordinal items: latent responses cut at the population thresholds; each data set fitted by "
             f"{result.ordinal} on its thresholds and polychoric correlations, with robust standard errors.",
-            f"The adjusted (scale-shifted) test rejected the true model at alpha {unit(result.alpha, 2)} in "
+            f"The {ADJUSTED_TEST} test rejected the true model at alpha {unit(result.alpha, 2)} in "
             f"{100 * result.model_rejected:.1f}% of the converged replications (nominal {100 * result.alpha:g}%)."]
 
 
@@ -508,7 +516,7 @@ def power_curve_report(curve) -> Report:
     first = curve.results[0]
     lines = ["Converged: " + ", ".join(f"{r.converged} of {r.replications} at N = {r.n_obs}" for r in curve.results) + "."]
     if first.ordinal:
-        lines += [_ordinal_power_lines(first)[0], "The adjusted test rejected the true model at alpha "
+        lines += [_ordinal_power_lines(first)[0], f"The {ADJUSTED_TEST} test rejected the true model at alpha "
                   f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {r.n_obs}"
                                                            for r in curve.results) + " of the converged replications."]
     if first.defaulted:
