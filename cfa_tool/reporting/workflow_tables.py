@@ -8,7 +8,7 @@ from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.method import ADJUSTED_TEST, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.numbers import missing, num, p_value, short, signed, unit
+from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
@@ -94,6 +94,30 @@ def _design_lines(result) -> tuple[str, ...]:
     return (design.sentence(result.method.full_information, result.method.ordinal),) if design is not None else ()
 
 
+BOUNDARY_CAUTION = ("values on the boundary of what the general model allows, so the chi-square difference does not "
+                    "follow the usual chi-square distribution (Self & Liang 1987; Stoel, Garre, Dolan & van den "
+                    "Wittenboer 2006)")
+
+
+def boundary_note(tests) -> str:
+    """The note under a difference-test table whose restricted model sits on the boundary: what lies there, why the
+    printed p-values are not exact, and the mixture's p-value when one parameter lies there."""
+    what = "; ".join(tests[0].boundary)
+    mixture = [t for t in tests if not missing(t.boundary_p_value)]
+    if mixture:
+        found = ", ".join(f"p {p_phrase(t.boundary_p_value)} for the {t.method}" for t in mixture)
+        reading = (f"With one parameter on the boundary the difference follows the 50:50 mixture of chi-square "
+                   f"distributions with {mixture[0].df_difference - 1} and {mixture[0].df_difference} df (Self & Liang "
+                   f"1987; Stram & Lee 1994), which gives {found}"
+                   + (" (for the scaled differences as an approximation)" if len(mixture) > 1 else "")
+                   + ": read those, not the p-values marked *.")
+    else:
+        reading = ("Its distribution depends on the model here (several parameters on the boundary, or loadings that the "
+                   "restricted model leaves undefined), so no exact p-value is given: read the p-values marked * as "
+                   "rough, and weigh the models also by their fit indices, AIC and BIC.")
+    return f"* On the boundary: {what}: {BOUNDARY_CAUTION}. {reading}"
+
+
 def comparison_report(comparison) -> Report:
     named = list(zip(comparison.names, comparison.results))
     problems = _problem_lines(named)
@@ -143,19 +167,27 @@ def comparison_report(comparison) -> Report:
     notes = []
     for k, ((restricted, general), found) in enumerate(pairs.items()):  # one small table per nested pair
         rows, values = [], []
+        boundary = found[0].boundary
         for t in found:
             if t.not_computed:
                 rows.append([t.method, f"not computed ({t.df_difference})", "", "", ""])
                 notes.append(f"{t.method}: not computed: {t.not_computed}.")
             else:
-                rows.append([t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})", p_value(t.p_value),
-                             signed(t.delta_cfi), signed(t.delta_rmsea)])
+                rows.append([t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})",
+                             p_value(t.p_value) + (" *" if boundary else ""), signed(t.delta_cfi), signed(t.delta_rmsea)])
             values.append([t.method, None if t.not_computed else t.chi_square_difference, t.df_difference,
-                           None if t.not_computed else t.p_value, t.delta_cfi, t.delta_rmsea, t.not_computed])
+                           None if t.not_computed else t.p_value, t.delta_cfi, t.delta_rmsea, t.not_computed,
+                           "; ".join(t.boundary), None if missing(t.boundary_p_value) else t.boundary_p_value])
+        if boundary:
+            cautions.append(f"{restricted} against {general}: the restricted model has {'; '.join(boundary)}: "
+                            f"{BOUNDARY_CAUTION}; read the p-values of this comparison as approximate (see the note "
+                            f"under its table).")
         tables.append(_table(f"difference_tests_{k + 1}", f"{restricted} (restricted) against {general}: difference tests",
                              [("Test", "l"), ("Difference (df)", "r"), ("p", "r"), ("\u0394CFI", "r"), ("\u0394RMSEA", "r")],
-                             rows, values=(["Test", "Chi-square difference", "df difference", "p", "\u0394CFI",
-                                            "\u0394RMSEA", "Not computed because"], values)))
+                             rows, boundary_note(found) if boundary else None,
+                             values=(["Test", "Chi-square difference", "df difference", "p", "\u0394CFI",
+                                      "\u0394RMSEA", "Not computed because", "On the boundary",
+                                      "p, one parameter on the boundary"], values)))
     for n in comparison.not_nested:
         advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
         notes.append(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")

@@ -24,7 +24,8 @@ from cfa_tool.inference.robust import robust_parts
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
-from cfa_tool.workflows.nesting import DifferenceTest, difference_test, is_nested, scaled_difference_tests
+from cfa_tool.workflows.nesting import (DifferenceTest, boundary_of, difference_test, is_nested,
+                                       scaled_difference_tests)
 from cfa_tool.views import Presentable
 
 
@@ -234,7 +235,8 @@ def _each_pair(names, results, test_pair, specs, likelihood: bool) -> tuple[list
                 continue
             found, reason = test_pair(a, b)
             if found:
-                tests.extend(found)
+                boundary = boundary_of(specs[a], results[a], specs[b], results[b])
+                tests.extend(boundary.mark(t) for t in found)
             else:
                 if not likelihood:
                     reason += ("; AIC and BIC do not exist for least-squares fits of ordinal items, so no "
