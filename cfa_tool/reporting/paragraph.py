@@ -305,6 +305,10 @@ def methods_paragraph(result) -> str:
             parts.append(f"The solution was not admissible: it has {_list(named)}. Its estimates therefore cannot "
                          f"describe a population and its fit is not evidence for the model; the values below are "
                          f"reported only so that the problem can be judged.")
+    weak = [p.phrase() for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
+    if weak:
+        parts.append(f"The solution has {_list(weak)} (a common-practice guide for negligible loadings): its items "
+                     f"share little beyond the other factors they load on.")
     parts.append(_fit_sentence(result))
     loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed]
     second = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed]

@@ -4,6 +4,7 @@ every writer draws.  Problems of a solution come first; the cautions come last."
 
 from __future__ import annotations
 
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.method import ADJUSTED_TEST, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
@@ -27,6 +28,19 @@ def _problem_lines(named_results) -> list[str]:
     return [f"The solution of {name} is not admissible (" + "; ".join(p.phrase() for p in r.problems if p.kind.inadmissible)
             + "): do not interpret its estimates or fit, and do not choose it over another model on its fit."
             for name, r in named_results if r.converged and not r.admissible]
+
+
+def _caution_lines(named_results) -> list[str]:
+    """One line per caution about a solution that is admissible but needs care in reading (a method factor that
+    carries next to nothing, a standardized loading above 1), each once, named by its model."""
+    kinds = (ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE)
+    lines: list[str] = []
+    for name, r in named_results:
+        for p in getattr(r, "problems", ()) if r.converged else ():
+            line = f"{name}: " + (f"group {p.group}: " if p.group is not None else "") + p.line()
+            if p.kind in kinds and line not in lines:
+                lines.append(line)
+    return lines
 
 
 def _notice(problems: list[str], cautions: list[str] = ()) -> ProblemNotice | None:
@@ -134,6 +148,7 @@ def comparison_report(comparison) -> Report:
                  f"is not admissible: that is no reason to prefer it." for name, indices in lowest.items()]
     total = comparison.n_obs + comparison.rows_dropped
     cautions = [p.line() for p in comparison.problems]  # the data's, first
+    cautions += _caution_lines(named)
     full_information = comparison.missing is MissingData.FULL_INFORMATION
     if comparison.rows_dropped > 0.05 * total and not (full_information or comparison.missing is MissingData.PAIRWISE):
         cautions.append(f"{comparison.rows_dropped} of {total} rows ({100 * comparison.rows_dropped / total:.0f}%) miss an "
@@ -317,9 +332,10 @@ def invariance_report(result) -> Report:
     elif result.latent_note:
         notes.append(result.latent_note)
     inadmissible = any(s.result.converged and not s.result.admissible for s in result.steps)
-    notice = None if not result.warnings else ProblemNotice(
-        SOME_NOT_ADMISSIBLE if inadmissible else T.CAUTION, tuple(result.warnings), inadmissible)
     first = result.steps[0].result
+    warnings = tuple(result.warnings) + tuple(_caution_lines([(f"the {result.steps[0].level} model", first)]))
+    notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else T.CAUTION, warnings,
+                                                     inadmissible)
     lines = (f"Reference group (factor means fixed at zero): {result.groups[0]}",
              f"{first.n_obs} rows analysed ({', '.join(f'{g.label}: {g.data.n_obs}' for g in first.groups)}); "
              f"estimation: {first.estimator}",
@@ -342,10 +358,11 @@ def _replication_figures(result, adjusted: bool) -> tuple:
 
 def replication_report(replications) -> Report:
     reps = list(getattr(replications, "replications", None) or [replications])
-    problems, tables, notes = [], [], []
+    problems, cautions, tables, notes = [], [], [], []
     for k, rep in enumerate(reps):
         problems += _problem_lines([(f"the calibration fit ({rep.calibration})", rep.calibration_result),
                                     (f"the loose refit ({rep.validation})", rep.loose)])
+        cautions += _caution_lines([(f"the calibration fit ({rep.calibration})", rep.calibration_result)])
         cal = _replication_figures(rep.calibration_result, rep.adjusted)
         rows = [[f"Calibration fit (N = {rep.calibration_result.n_obs})", f"{cal[0]:.3f}", str(cal[1]),
                  p_value(cal[2]), unit(cal[3]), unit(cal[4])]]
@@ -376,7 +393,7 @@ def replication_report(replications) -> Report:
                      "correlations with those the calibration estimates imply, and the cross-validation index is the "
                      "least-squares discrepancy with the validation sample's weights.")
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
-    return Report(ResultKind.REPLICATE, title, _notice(problems), (), tuple(tables), tuple(notes),
+    return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), (), tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE))
 
 
