@@ -155,6 +155,21 @@ class DifferenceMethod(str, Enum):
     def __str__(self) -> str:
         return self.value
 
+    @property
+    def phrase(self) -> str:
+        """The test in the words of a methods paragraph, with its authors."""
+        return _DIFFERENCE_PHRASES[self]
+
+
+_DIFFERENCE_PHRASES = {
+    DifferenceMethod.LIKELIHOOD_RATIO: "the likelihood-ratio chi-square difference test (Steiger, Shapiro & Browne, 1985)",
+    DifferenceMethod.SATORRA_BENTLER_2001: "the scaled chi-square difference test (Satorra & Bentler, 2001)",
+    DifferenceMethod.SATORRA_BENTLER_2010: "the strictly positive scaled chi-square difference test (Satorra & Bentler, "
+                                           "2010)",
+    DifferenceMethod.SCALE_SHIFTED: f"the {ADJUSTED_TEST} chi-square difference test (Satorra, 2000; Asparouhov & "
+                                    f"Muthen, 2006)",
+}
+
 
 @dataclass(frozen=True)
 class FitMethod:

@@ -9,6 +9,7 @@ from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.method import ADJUSTED_TEST, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
+from cfa_tool.reporting.paragraph import comparison_paragraph
 from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
 
@@ -210,7 +211,7 @@ def comparison_report(comparison) -> Report:
         notes.append(CHANGE_GUIDES)
     notes += list(comparison.notes)
     return Report(ResultKind.COMPARE, "Model comparison", _notice(problems, cautions), lines, tuple(tables),
-                  tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE))
+                  tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), comparison_paragraph(comparison))
 
 
 # ---------------------------------------------------------------- invariance
