@@ -45,9 +45,13 @@ def weak_factor_problems(estimates, latent: tuple[str, ...], observed: tuple[str
     ``groups``: its GroupResults (label, r_squared, latent_covariance); ``leave_out``: factors not to judge (those
     of exploratory blocks, whose rotated loadings are reported elsewhere)."""
     items_of = set(observed)
+    by_group: dict = {}
+    for r in estimates:  # one pass: a fit of many groups has thousands of rows
+        if r.kind == "loading" and r.variables[1] in items_of:
+            by_group.setdefault(r.group, []).append(r)
     out = []
     for group in groups:
-        rows = [r for r in estimates if r.kind == "loading" and r.group == group.label and r.variables[1] in items_of]
+        rows = by_group.get(group.label, [])
         loadings: dict[str, set[str]] = {}
         for r in rows:
             loadings.setdefault(r.variables[0], set()).add(r.variables[1])
