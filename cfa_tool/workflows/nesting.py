@@ -87,6 +87,10 @@ def _cross_cutting(factor: str, items: dict[str, frozenset[str]], spec: Spec) ->
     return factor in spec.method_factors or items[factor] <= others
 
 
+def _count(n: int, noun: str) -> str:
+    return f"{n} {noun}" + ("" if n == 1 else "s")
+
+
 def _listed(names: list[str]) -> str:
     return names[0] if len(names) == 1 else ", ".join(names[:-1]) + " and " + names[-1]
 
@@ -101,12 +105,24 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
       correlations at 1 (a factor covariance matrix of rank k - 1 lower for k merged; one merge of two factors is
       one parameter on the boundary);
     * a factor belonging to none is left out: its variance is 0 and its loadings are then not identified, so no
-      mixture applies;
+      mixture applies; so is a factor of an exploratory block of the general model when the restricted model has
+      fewer factors on the block's items (the likelihood-ratio test of the number of factors is not chi-square
+      distributed then either; Hayashi, Bentler & Yuan 2007);
     * a variance the restricted model fixes at 0, or a covariance it fixes at a correlation of +/-1, where the
       general model estimates it (one parameter each; a factor's variance at 0 leaves its loadings unidentified)."""
     parts: list[str] = []
     on_boundary, identified = 0, True
     items_r, items_g = _first_order_items(restricted_spec), _first_order_items(general_spec)
+    for block in general_spec.exploratory:  # exploratory blocks: their factors all load on every item of the block
+        block_items = set(block.item_names)
+        kept = sum(1 for items in items_r.values() if items & block_items)
+        if kept < len(block.factors):
+            parts.append(f"{_count(len(block.factors) - kept, 'factor')} of the exploratory block of "
+                         f"{_listed(list(block.factor_names))} left out "
+                         f"({'its' if len(block.factors) - kept == 1 else 'their'} loadings at 0)")
+            identified = False
+        for f in block.factor_names:
+            items_g.pop(f, None)
     owner: dict[str, list[str]] = {}
     exact = {items: r for r, items in items_r.items()}
     for g, items in items_g.items():

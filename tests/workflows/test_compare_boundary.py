@@ -19,16 +19,20 @@ TWO = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\n"
 ONE = "factor g: y1, y2, y3, y4, y5, y6\n"
 
 
-@pytest.fixture(scope="module")
-def data() -> pd.DataFrame:
-    # two factors correlating .95, loadings .7, residual variances .51 (invented population values)
-    rng = np.random.default_rng(20261203)
+def _rows(correlation: float, seed: int = 20261203, n: int = 400) -> pd.DataFrame:
+    # two factors correlating as given, loadings .7, residual variances .51 (invented population values)
+    rng = np.random.default_rng(seed)
     L = np.zeros((6, 2))
     L[:3, 0] = L[3:, 1] = 0.7
-    phi = np.array([[1.0, 0.95], [0.95, 1.0]])
+    phi = np.array([[1.0, correlation], [correlation, 1.0]])
     sigma = L @ phi @ L.T + np.diag(np.full(6, 0.51))
-    rows = rng.multivariate_normal(np.zeros(6), sigma, size=400)
+    rows = rng.multivariate_normal(np.zeros(6), sigma, size=n)
     return pd.DataFrame(rows, columns=[f"y{i}" for i in range(1, 7)])
+
+
+@pytest.fixture(scope="module")
+def data() -> pd.DataFrame:
+    return _rows(0.95)
 
 
 def test_two_factors_merged_into_one_get_the_mixture_p_value(data):
@@ -99,3 +103,16 @@ def test_ordinal_comparisons_say_it_too(data):
     (t,) = comparison.tests
     assert t.boundary == ("factors a and b merged into g (their correlation fixed at 1)",)
     assert t.boundary_p_value == pytest.approx(0.5 * stats.chi2.sf(t.chi_square_difference, 1), rel=1e-10)
+
+
+def test_fewer_factors_than_an_exploratory_block_is_said_without_a_mixture():
+    # one factor against an exploratory block of two: the second factor's loadings at 0, where the likelihood-ratio
+    # test of the number of factors is not chi-square distributed (Hayashi, Bentler & Yuan 2007)
+    data = _rows(0.6, seed=7, n=500)
+    comparison = compare([ONE, "exploratory factors f1, f2 from y1..y6\n"], data)
+    (t,) = comparison.tests
+    assert t.boundary == ("1 factor of the exploratory block of f1 and f2 left out (its loadings at 0)",)
+    assert np.isnan(t.boundary_p_value)
+    # the same number of factors, confirmatory against exploratory: nothing on the boundary
+    (same,) = compare([TWO, "exploratory factors f1, f2 from y1..y6\n"], data).tests
+    assert same.boundary == ()
