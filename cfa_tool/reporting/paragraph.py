@@ -268,6 +268,15 @@ def _fit_sentence(result) -> str:
             f"TLI = {unit(f.tli)}, RMSEA = {unit(f.rmsea)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}.")
 
 
+def _weak_factor_sentence(result, subject: str) -> str:
+    """A sentence on the method factors of ``result`` that carry next to nothing ('' when there are none)."""
+    weak = [p.phrase() for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
+    if not weak:
+        return ""
+    return (f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): its items share little "
+            f"beyond the other factors they load on.")
+
+
 def methods_paragraph(result) -> str:
     if not result.converged or result.fit is None:
         return "The model did not converge, so no results are reported."
@@ -305,10 +314,9 @@ def methods_paragraph(result) -> str:
             parts.append(f"The solution was not admissible: it has {_list(named)}. Its estimates therefore cannot "
                          f"describe a population and its fit is not evidence for the model; the values below are "
                          f"reported only so that the problem can be judged.")
-    weak = [p.phrase() for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
+    weak = _weak_factor_sentence(result, "The solution")
     if weak:
-        parts.append(f"The solution has {_list(weak)} (a common-practice guide for negligible loadings): its items "
-                     f"share little beyond the other factors they load on.")
+        parts.append(weak)
     parts.append(_fit_sentence(result))
     loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed]
     second = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed]
@@ -407,6 +415,9 @@ def comparison_paragraph(comparison) -> str:
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
     parts.append(f"Fit{statistic}: " + "; ".join(f"{label[name]}, {_fit_figures(r)}" for name, r in zip(names, results)) + ".")
     for name, r in zip(names, results):
+        weak = _weak_factor_sentence(r, f"The solution of {label[name]}") if r.converged else ""
+        if weak:
+            parts.append(weak)
         if r.converged and not r.admissible:
             found = _list([p.phrase() for p in r.problems if p.kind.inadmissible])
             parts.append(f"The solution of {label[name]} was not admissible ({found}): its fit is not evidence for it.")

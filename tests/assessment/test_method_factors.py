@@ -90,6 +90,8 @@ def test_compare_and_invariance_reports_carry_the_caution(weak_fit):
     comparison = compare([TRAITS, TRAITS + METHOD], data)
     lines = comparison_report(comparison).notice.lines
     assert any("method factor m" in line and "share little beyond" in line for line in lines)
+    assert ("The solution of Model 2 has a factor beside the traits (m) whose standardized loadings are all below .20"
+            in comparison_report(comparison).paragraph)
     # the restricted model leaves m out: its variance on the boundary (said beside the test)
     assert comparison.tests[0].boundary == ("factor m left out (its variance fixed at 0)",)
     # invariance: the configural model's caution (per group; 2000 rows a group, so that the weak factor stays small)
