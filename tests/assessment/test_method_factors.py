@@ -15,6 +15,7 @@ from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.workflow_tables import comparison_report, invariance_report
 from cfa_tool.workflows.compare import compare
 from cfa_tool.workflows.invariance import invariance
+from tests.conftest import simulate_cfa
 
 TRAITS = "factor a: y1, y2, y3, y4\nfactor b: y5, y6, y7, y8\n"
 METHOD = "factor m: y2, y4, y6, y8\nmethod m\nuncorrelated m, a\nuncorrelated m, b\nscale m by variance\n"
@@ -22,15 +23,12 @@ METHOD = "factor m: y2, y4, y6, y8\nmethod m\nuncorrelated m, a\nuncorrelated m,
 
 def _data(method_loading: float, n: int = 800, seed: int = 20261203) -> pd.DataFrame:
     """Two traits correlating .4 with loadings .7, and a method factor on items 2, 4, 6, 8 (invented values)."""
-    rng = np.random.default_rng(seed)
     L = np.zeros((8, 3))
     L[:4, 0] = L[4:, 1] = 0.7
     L[[1, 3, 5, 7], 2] = method_loading
     phi = np.eye(3)
     phi[0, 1] = phi[1, 0] = 0.4
-    sigma = L @ phi @ L.T
-    sigma += np.diag(1.0 - np.diag(sigma))
-    return pd.DataFrame(rng.multivariate_normal(np.zeros(8), sigma, size=n), columns=[f"y{i}" for i in range(1, 9)])
+    return simulate_cfa(L, phi, np.diag(1.0 - np.diag(L @ phi @ L.T)), n, seed)
 
 
 def _weak(result):

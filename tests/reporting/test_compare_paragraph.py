@@ -14,6 +14,7 @@ from cfa_tool.method import ADJUSTED_TEST
 from cfa_tool.reporting.paragraph import comparison_paragraph
 from cfa_tool.reporting.workflow_tables import comparison_report
 from cfa_tool.workflows.compare import compare
+from tests.conftest import simulate_cfa
 
 TWO = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\n"
 ONE = "factor g: y1, y2, y3, y4, y5, y6\n"
@@ -23,11 +24,9 @@ WITH_RESIDUAL = TWO + "covary y1, y2\n"
 @pytest.fixture(scope="module")
 def data() -> pd.DataFrame:
     # invented population: two factors correlating .6, loadings .7, residual variances .51
-    rng = np.random.default_rng(7)
     L = np.zeros((6, 2))
     L[:3, 0] = L[3:, 1] = 0.7
-    sigma = L @ np.array([[1.0, 0.6], [0.6, 1.0]]) @ L.T + np.diag(np.full(6, 0.51))
-    return pd.DataFrame(rng.multivariate_normal(np.zeros(6), sigma, size=500), columns=[f"y{i}" for i in range(1, 7)])
+    return simulate_cfa(L, np.array([[1.0, 0.6], [0.6, 1.0]]), np.diag(np.full(6, 0.51)), 500, 7)
 
 
 def test_the_paragraph_describes_each_model_and_the_likelihood_ratio_test(data):

@@ -14,6 +14,7 @@ from scipy import stats
 from cfa_tool.reporting.numbers import p_phrase
 from cfa_tool.reporting.workflow_tables import comparison_report
 from cfa_tool.workflows.compare import compare
+from tests.conftest import simulate_cfa
 
 TWO = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\n"
 ONE = "factor g: y1, y2, y3, y4, y5, y6\n"
@@ -21,13 +22,9 @@ ONE = "factor g: y1, y2, y3, y4, y5, y6\n"
 
 def _rows(correlation: float, seed: int = 20261203, n: int = 400) -> pd.DataFrame:
     # two factors correlating as given, loadings .7, residual variances .51 (invented population values)
-    rng = np.random.default_rng(seed)
     L = np.zeros((6, 2))
     L[:3, 0] = L[3:, 1] = 0.7
-    phi = np.array([[1.0, correlation], [correlation, 1.0]])
-    sigma = L @ phi @ L.T + np.diag(np.full(6, 0.51))
-    rows = rng.multivariate_normal(np.zeros(6), sigma, size=n)
-    return pd.DataFrame(rows, columns=[f"y{i}" for i in range(1, 7)])
+    return simulate_cfa(L, np.array([[1.0, correlation], [correlation, 1.0]]), np.diag(np.full(6, 0.51)), n, seed)
 
 
 @pytest.fixture(scope="module")
