@@ -60,15 +60,22 @@ class Weighting(Choice):
     UNWEIGHTED = ("unweighted", "unweighted", "unweighted least squares")
 
 
+#: The adjusted test of least squares for ordinal items, in the words every report, note and methods paragraph uses
+#: (declared once): the statistic is chi-square x scale + shift (Asparouhov & Muthen 2010), and the difference of two
+#: nested fits is adjusted the same way (Satorra 2000; Asparouhov & Muthen 2006).
+ADJUSTED_TEST = "scale-shifted, mean and variance adjusted"
+
+
 class FitTest(Choice):
-    """The test of the model's fit (and the standard errors that go with it)."""
+    """The test of the model's fit (and the standard errors that go with it); ``pieces`` name what turns the
+    chi-square into the corrected statistic, ``rule`` says how."""
 
     NORMAL = ("normal", "likelihood ratio", "the normal-theory likelihood-ratio test")
     SATORRA_BENTLER = ("satorra-bentler", "Satorra-Bentler",
                        "the Satorra-Bentler scaled test and robust standard errors")
     YUAN_BENTLER = ("yuan-bentler", "Yuan-Bentler", "the Yuan-Bentler scaled test and robust standard errors")
-    SCALE_SHIFTED = ("scale-shifted", "scale-shifted, mean and variance adjusted (Asparouhov & Muthen 2010)",
-                     "mean-and-variance adjusted (scale-shifted) chi-square test", False)
+    SCALE_SHIFTED = ("scale-shifted", f"{ADJUSTED_TEST} (Asparouhov & Muthen 2010)",
+                     f"{ADJUSTED_TEST} chi-square test (Asparouhov & Muthen, 2010)", False)
     # the robust test that suits the data, resolved before any fit (FitOptions): Satorra-Bentler with
     # complete rows, Yuan-Bentler with full-information ML, the adjusted test of least squares for ordinal items
     ROBUST = ("robust", "robust", "a robust test", True)
@@ -83,6 +90,23 @@ class FitTest(Choice):
     def robust(self) -> bool:
         """Whether the test is a corrected one with robust (sandwich) standard errors."""
         return self is not FitTest.NORMAL
+
+    @property
+    def pieces(self) -> tuple[str, ...]:
+        """The names of the numbers that turn the chi-square into this test's statistic."""
+        return ("scale", "shift") if self is FitTest.SCALE_SHIFTED else ("scaling factor",)
+
+    @property
+    def correction(self) -> str:
+        """The pieces in the words of a table row: 'scale and shift', 'scaling factor'."""
+        return " and ".join(self.pieces)
+
+    @property
+    def rule(self) -> str:
+        """How the pieces make the statistic, so that a reader can reproduce it."""
+        if self is FitTest.SCALE_SHIFTED:
+            return "statistic = chi-square x scale + shift"
+        return "statistic = chi-square / factor; 1 under normality"
 
 
 class Information(Choice):
@@ -126,10 +150,25 @@ class DifferenceMethod(str, Enum):
     LIKELIHOOD_RATIO = "likelihood ratio"
     SATORRA_BENTLER_2001 = "Satorra-Bentler 2001 scaled difference"
     SATORRA_BENTLER_2010 = "Satorra-Bentler 2010 strictly positive scaled difference"
-    SCALE_SHIFTED = "scale-shifted adjusted difference (Asparouhov & Muthen 2006)"
+    SCALE_SHIFTED = f"{ADJUSTED_TEST} difference (Asparouhov & Muthen 2006)"
 
     def __str__(self) -> str:
         return self.value
+
+    @property
+    def phrase(self) -> str:
+        """The test in the words of a methods paragraph, with its authors."""
+        return _DIFFERENCE_PHRASES[self]
+
+
+_DIFFERENCE_PHRASES = {
+    DifferenceMethod.LIKELIHOOD_RATIO: "the likelihood-ratio chi-square difference test (Steiger, Shapiro & Browne, 1985)",
+    DifferenceMethod.SATORRA_BENTLER_2001: "the scaled chi-square difference test (Satorra & Bentler, 2001)",
+    DifferenceMethod.SATORRA_BENTLER_2010: "the strictly positive scaled chi-square difference test (Satorra & Bentler, "
+                                           "2010)",
+    DifferenceMethod.SCALE_SHIFTED: f"the {ADJUSTED_TEST} chi-square difference test (Satorra, 2000; Asparouhov & "
+                                    f"Muthen, 2006)",
+}
 
 
 @dataclass(frozen=True)

@@ -51,6 +51,8 @@ class ProblemKind(enum.Enum):
     SMALL_EFFECTIVE_SAMPLE = ("small effective sample", "small effective sample", False)
     # not of the solution but of the data: values in item columns that look like no answers (data.odd_values)
     VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
+    # a method or bifactor-like factor whose standardized loadings are all small (assessment.method_factors)
+    WEAK_METHOD_FACTOR = ("weak method factor", "small loadings only", False)
 
 
 @dataclass(frozen=True)
@@ -94,6 +96,8 @@ class Problem:
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
             K.SMALL_EFFECTIVE_SAMPLE: f"an effective sample size of only {v} under the weights",
             K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
+            K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
+                                  f"all below .20 in size",
         }[self.kind]
         return text + (f" in group {self.group}" if self.group is not None else "")
 

@@ -50,6 +50,12 @@ class RobustFit:
     scale: float | None = None
     shift: float | None = None
 
+    @property
+    def pieces(self) -> tuple[tuple[str, float], ...]:
+        """(name, value) of what turns the chi-square into the statistic, named as ``test.pieces`` names them."""
+        values = (self.scale, self.shift) if self.test is FitTest.SCALE_SHIFTED else (self.scaling_factor,)
+        return tuple(zip(self.test.pieces, values))
+
     def to_dict(self) -> dict:
         d = asdict(self)
         del d["test"]

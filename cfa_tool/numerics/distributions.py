@@ -11,6 +11,15 @@ def chi2_sf(x, df):
     return special.chdtrc(df, np.maximum(x, 0.0))
 
 
+def boundary_mixture_sf(x: float, df: int) -> float:
+    """P(T >= x) for T distributed as the 50:50 mixture of chi-square(df - 1) and chi-square(df): the likelihood-ratio
+    statistic when one of the df parameters tested lies on the boundary of its space (a variance at 0, a correlation
+    at 1) and the others inside it (Self & Liang 1987; Stram & Lee 1994).  chi-square(0) is the point mass at 0."""
+    x = max(float(x), 0.0)
+    lower = (1.0 if x <= 0.0 else 0.0) if df == 1 else float(chi2_sf(x, df - 1))
+    return 0.5 * lower + 0.5 * float(chi2_sf(x, df))
+
+
 def chi2_cdf(x, df):
     return special.chdtr(df, np.maximum(x, 0.0))
 

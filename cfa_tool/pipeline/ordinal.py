@@ -32,7 +32,7 @@ from cfa_tool.inference.adjusted import (AdjustedTest, adjusted_fit, adjusted_fr
 from cfa_tool.inference.standard_errors import wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import ParameterRef, Spec, ValueSetting
-from cfa_tool.method import Estimator, FitMethod, FitTest, Information, Items, MissingData, Weighting
+from cfa_tool.method import ADJUSTED_TEST, Estimator, FitMethod, FitTest, Information, Items, MissingData, Weighting
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
@@ -41,8 +41,8 @@ from cfa_tool.pipeline.continuous import estimate_rows
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.pipeline.results import DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
-ORDINAL_NOTE = ("With ordinal items the fit indices come from the scale-shifted adjusted statistic; they were developed for "
-                "continuous data and tend to look better with ordinal data at the same misfit, so read them with care.")
+ORDINAL_NOTE = (f"With ordinal items the fit indices come from the {ADJUSTED_TEST} statistic; they were developed "
+                "for continuous data and tend to look better with ordinal data at the same misfit, so read them with care.")
 GROUPS_NOTE = ("Ordinal items in several groups: the latent responses have intercept 0 and residual variance 1 in the first "
                "group (and wherever an item's thresholds differ across groups); loadings and residual variances are in "
                "that metric; standardized values compare across groups (identification after Wu & Estabrook 2016).")

@@ -404,6 +404,11 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         groups = tuple(replace(g, reliability=tuple(r for r in g.reliability if r.factor not in inside),
                                htmt=tuple(h for h in g.htmt if not inside.intersection((h.first, h.second))))
                        for g in groups)
+    if converged:  # a method factor that carries next to nothing: a caution
+        from cfa_tool.assessment.method_factors import weak_factor_problems
+
+        problems = tuple(problems) + tuple(weak_factor_problems(estimates, latent, observed, groups, spec.method_factors,
+                                                                spec.exploratory_factors))
     return FitResult(
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
         estimator=method.sentence(len(groups)), method=method, converged=converged, iterations=iterations,

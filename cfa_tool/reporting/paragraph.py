@@ -13,11 +13,11 @@ from __future__ import annotations
 
 import math
 
-from cfa_tool.method import Information, FitTest, Items, MissingData
+from cfa_tool.method import DifferenceMethod, Information, FitTest, Items, MissingData
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
-from cfa_tool.reporting.numbers import p_phrase, unit
+from cfa_tool.reporting.numbers import p_phrase, signed, unit
 
 CHI = "\u03c7\u00b2"
 WORDS = {1: "one", 2: "two", 3: "three", 4: "four", 5: "five", 6: "six", 7: "seven", 8: "eight", 9: "nine", 10: "ten"}
@@ -61,7 +61,7 @@ def _estimator_phrase(result) -> str:
 
 def _test_phrase(test: FitTest) -> str:
     if test is FitTest.SCALE_SHIFTED:
-        return "mean-and-variance adjusted (scale-shifted) chi-square test"
+        return test.phrase
     return f"{test.label} scaled chi-square test"
 
 
@@ -259,14 +259,22 @@ def _fit_sentence(result) -> str:
     if result.robust is not None:
         r = result.robust
         rl, rh = r.rmsea_robust_ci90
+        pieces = ", ".join(f"{name} {value:.3f}" for name, value in r.pieces)
         return (f"The {_test_phrase(r.test)} gave {CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
-                + (f"(scale {r.scale:.3f}, shift {r.shift:.3f}); robust CFI" if r.scale is not None else
-                   f"(scaling factor {r.scaling_factor:.3f}); robust CFI")
-                + f" = {unit(r.cfi_robust)}, robust TLI = "
+                f"({pieces}); robust CFI = {unit(r.cfi_robust)}, robust TLI = "
                 f"{unit(r.tli_robust)}, robust RMSEA = {unit(r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], "
                 f"SRMR = {unit(f.srmr)}.")
     return (f"The model fit was {CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {unit(f.cfi)}, "
             f"TLI = {unit(f.tli)}, RMSEA = {unit(f.rmsea)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}.")
+
+
+def _weak_factor_sentence(result, subject: str) -> str:
+    """A sentence on the method factors of ``result`` that carry next to nothing ('' when there are none)."""
+    weak = [p.phrase() for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
+    if not weak:
+        return ""
+    return (f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): its items share little "
+            f"beyond the other factors they load on.")
 
 
 def methods_paragraph(result) -> str:
@@ -306,6 +314,9 @@ def methods_paragraph(result) -> str:
             parts.append(f"The solution was not admissible: it has {_list(named)}. Its estimates therefore cannot "
                          f"describe a population and its fit is not evidence for the model; the values below are "
                          f"reported only so that the problem can be judged.")
+    weak = _weak_factor_sentence(result, "The solution")
+    if weak:
+        parts.append(weak)
     parts.append(_fit_sentence(result))
     loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed]
     second = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed]
@@ -333,4 +344,122 @@ def methods_paragraph(result) -> str:
     if result.fit.df > 0 and not inadmissible:
         parts.append("Fit was judged against conventional guide values (e.g., CFI \u2265 .95, RMSEA \u2264 .06, "
                      "SRMR \u2264 .08; Hu & Bentler, 1999), which are conventions rather than strict criteria.")
+    return " ".join(parts)
+
+
+#: which of a pair's difference tests a comparison's paragraph reports: the one to read for the fits' test
+_PREFERRED = (DifferenceMethod.SCALE_SHIFTED, DifferenceMethod.SATORRA_BENTLER_2010,
+              DifferenceMethod.SATORRA_BENTLER_2001, DifferenceMethod.LIKELIHOOD_RATIO)
+
+
+def _model_sentences(name: str, result) -> str:
+    """Exactly one model of a comparison: its factors and indicators, scales and departures from simple structure."""
+    d = result.description
+    if d is None:
+        return f"{name} had {_count(len(result.observed), 'indicator')}."
+    parts = [f"{name} had {_structure(result, d).rstrip(',')}."]
+    if d.scales:
+        parts.append(_scale_sentence(d))
+    departures = _departures(d)
+    if departures:
+        parts.append(departures.replace("The model also included", f"{name} also included", 1))
+    return " ".join(parts)
+
+
+def _fit_figures(result) -> str:
+    """A model's fit in a few figures: the test the comparison reads (the corrected one when there is one)."""
+    f, r = result.fit, result.robust
+    if not result.converged or f is None:
+        return "did not converge"
+    if f.df == 0:
+        return "was just-identified (0 df), so its fit could not be tested"
+    if r is not None:
+        low, high = r.rmsea_robust_ci90
+        return (f"{CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)}, robust CFI = {unit(r.cfi_robust)}, "
+                f"robust RMSEA = {unit(r.rmsea_robust)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}")
+    low, high = f.rmsea_ci90
+    return (f"{CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {unit(f.cfi)}, RMSEA = {unit(f.rmsea)}, "
+            f"90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}")
+
+
+def _comparison_rows(comparison) -> str:
+    """The rows every model of a comparison was fitted to, and how rows with gaps were handled."""
+    n, dropped = comparison.n_obs, comparison.rows_dropped
+    if comparison.missing is MissingData.FULL_INFORMATION:
+        how = "every answer of every row was used, including rows with missing answers"
+    elif comparison.missing is MissingData.PAIRWISE:
+        how = ("every answer was used: each item's thresholds from the rows that answered it and each correlation "
+               "from the rows that answered both items")
+    else:
+        how = (f"{dropped} of {n + dropped} rows with a missing answer on some model's variables were excluded listwise"
+               if dropped else "")
+    left = (f"; {dropped} of {n + dropped} rows answered none of some model's variables and were left out"
+            if dropped and comparison.missing is not MissingData.LISTWISE else "")
+    return f"N = {n}" + (f"; {how}" if how else "") + left
+
+
+def comparison_paragraph(comparison) -> str:
+    """The methods-and-results paragraph of a comparison: exactly the models compared (each one's factors, scales and
+    departures from simple structure), the estimator and the rows, which difference test was used (with its authors)
+    and its result for every nested pair, whether a restricted model sits on the boundary of the general model's
+    space (Self & Liang 1987; Stoel, Garre, Dolan & van den Wittenboer 2006), and the pairs that are not nested."""
+    names, results = comparison.names, comparison.results
+    label = {name: f"Model {k}" for k, name in enumerate(names, start=1)}
+    first = results[0]
+    parts = [f"{_capital(_count(len(names), 'model'))} of the same {_count(len(first.observed), 'indicator')} were "
+             f"compared on the same rows ({_comparison_rows(comparison)}), each estimated by {_estimator_phrase(first)}."]
+    parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
+    design = getattr(first, "design", None)
+    if design is not None:
+        parts.append(design.sentence(first.method.full_information, first.method.ordinal))
+    statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
+    parts.append(f"Fit{statistic}: " + "; ".join(f"{label[name]}, {_fit_figures(r)}" for name, r in zip(names, results)) + ".")
+    for name, r in zip(names, results):
+        weak = _weak_factor_sentence(r, f"The solution of {label[name]}") if r.converged else ""
+        if weak:
+            parts.append(weak)
+        if r.converged and not r.admissible:
+            found = _list([p.phrase() for p in r.problems if p.kind.inadmissible])
+            parts.append(f"The solution of {label[name]} was not admissible ({found}): its fit is not evidence for it.")
+    pairs: dict[tuple[str, str], list] = {}
+    for t in comparison.tests:
+        pairs.setdefault((t.restricted, t.general), []).append(t)
+    shown = {pair: [t for t in sorted(found, key=lambda t: _PREFERRED.index(t.method)) if not t.not_computed]
+             for pair, found in pairs.items()}
+    methods = sorted({found[0].method for found in shown.values() if found}, key=_PREFERRED.index)
+    if methods:
+        fits = ("" if first.method.ordinal or first.robust is None else
+                f" of the {first.robust.test.label} statistics")
+        parts.append(f"Nested models (found numerically: the general model reproduces the restricted model's implied "
+                     f"{'thresholds and correlations' if first.method.ordinal else 'moments'}; Bentler & Satorra, 2010) "
+                     f"were compared by {_list([m.phrase for m in methods])}{fits}"
+                     + ("; the difference of two full-information fits is a likelihood-ratio test when answers are "
+                        "missing at random (Little & Rubin, 2002)." if first.method.full_information else "."))
+    missed = {(t.method, t.not_computed) for t in comparison.tests if t.not_computed}
+    parts += [f"{_capital(method.phrase)} was not computed: {reason.split(';')[0]}." for method, reason in
+              sorted(missed, key=lambda m: _PREFERRED.index(m[0]))]
+    for (restricted, general), found in pairs.items():
+        pair = f"{label[restricted]} against {label[general]}"
+        if not shown[(restricted, general)]:
+            parts.append(f"For {pair} no difference statistic could be computed ({found[0].not_computed}).")
+            continue
+        t = shown[(restricted, general)][0]
+        which = f", {t.method}" if len(methods) > 1 else ""
+        sentence = (f"{pair}: {CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}{which}; "
+                    f"\u0394CFI = {signed(t.delta_cfi)}, \u0394RMSEA = {signed(t.delta_rmsea)}.")
+        if t.boundary:
+            sentence += (f" Because {label[restricted]} has {_list(list(t.boundary))}, values on the boundary of the "
+                         f"parameter space of {label[general]}, the difference does not follow the usual chi-square "
+                         f"distribution (Self & Liang, 1987; Stoel, Garre, Dolan, & van den Wittenboer, 2006)")
+            sentence += (f"; with one parameter on the boundary, its p-value from the 50:50 mixture of chi-square "
+                         f"distributions with {t.df_difference - 1} and {t.df_difference} df is {_p(t.boundary_p_value)}."
+                         if not math.isnan(t.boundary_p_value) else
+                         ", so its p-value is only approximate.")
+        parts.append(sentence)
+    for n in comparison.not_nested:
+        after = " and were compared by AIC and BIC" if n.information_criteria else ""
+        parts.append(f"{label[n.first]} and {label[n.second]} were not tested against each other ({n.reason}){after}.")
+    if pairs:
+        parts.append("Changes in CFI and RMSEA were read against conventional guides (Cheung & Rensvold, 2002; Chen, "
+                     "2007), which are conventions rather than tests.")
     return " ".join(parts)

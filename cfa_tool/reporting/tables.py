@@ -9,6 +9,7 @@ import numpy as np
 
 from cfa_tool.assessment.reliability import Keying
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
+from cfa_tool.method import ADJUSTED_TEST
 from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, unit
 from cfa_tool.reporting.remedies import Remedy
 
@@ -180,16 +181,19 @@ def fit_table(result) -> ReportTable:
 
 def _correction_row(r) -> list[str]:
     """How the corrected statistic follows from the chi-square, so that a reader can reproduce it."""
-    if r.scale is not None:  # scale-shifted: T* = scale x T + shift
-        return ["  scale and shift", f"{num(r.scale)} and {num(r.shift)}", "statistic = chi-square x scale + shift"]
-    return ["  scaling factor", num(r.scaling_factor), "statistic = chi-square / factor; 1 under normality"]
+    return [f"  {r.test.correction}", correction_text(r), r.test.rule]
+
+
+def correction_text(r) -> str:
+    """The values of the pieces that make the corrected statistic, as every table shows them: '1.155 and 36.256'."""
+    return " and ".join(num(value) for _, value in r.pieces)
 
 
 def robust_definition(r) -> str:
     """Which definition the robust indices follow."""
     if r.scale is not None:
-        return ("Robust CFI, TLI and RMSEA: the usual formulas applied to the scale-shifted statistics of the model and "
-                "of the baseline model (ordinal items); SRMR over the off-diagonal polychoric correlations.")
+        return (f"Robust CFI, TLI and RMSEA: the usual formulas applied to the {ADJUSTED_TEST} statistics of the model "
+                f"and of the baseline model (ordinal items); SRMR over the off-diagonal polychoric correlations.")
     return ("Robust CFI, TLI and RMSEA: the population-corrected definitions of Brosseau-Liard, Savalei & Li (2012) "
             "and Brosseau-Liard & Savalei (2014), not the indices of the scaled statistic.")
 
@@ -206,8 +210,7 @@ def _fit_values(result) -> list[list]:
     rows.append(["SRMR", f.srmr, nan, nan, nan, nan])
     if r is not None:
         rows += [[f"Scaled chi-square ({r.test.label})", r.chi_square_scaled, r.df, r.p_value_scaled, nan, nan],
-                 *([["Scale", r.scale, nan, nan, nan, nan], ["Shift", r.shift, nan, nan, nan, nan]]
-                   if r.scale is not None else [["Scaling factor", r.scaling_factor, nan, nan, nan, nan]]),
+                 *[[name.capitalize(), value, nan, nan, nan, nan] for name, value in r.pieces],
                  ["Robust CFI", r.cfi_robust, nan, nan, nan, nan], ["Robust TLI", r.tli_robust, nan, nan, nan, nan],
                  ["Robust RMSEA", r.rmsea_robust, nan, nan, *r.rmsea_robust_ci90]]
     rows.append(["Baseline (independence) chi-square", f.baseline_chi_square, f.baseline_df, nan, nan, nan])

@@ -4,11 +4,13 @@ every writer draws.  Problems of a solution come first; the cautions come last."
 
 from __future__ import annotations
 
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
-from cfa_tool.method import MissingData
+from cfa_tool.method import ADJUSTED_TEST, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.numbers import missing, num, p_value, short, signed, unit
+from cfa_tool.reporting.paragraph import comparison_paragraph
+from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
@@ -29,6 +31,19 @@ def _problem_lines(named_results) -> list[str]:
             for name, r in named_results if r.converged and not r.admissible]
 
 
+def _caution_lines(named_results) -> list[str]:
+    """One line per caution about a solution that is admissible but needs care in reading (a method factor that
+    carries next to nothing, a standardized loading above 1), each once, named by its model."""
+    kinds = (ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE)
+    lines: list[str] = []
+    for name, r in named_results:
+        for p in getattr(r, "problems", ()) if r.converged else ():
+            line = f"{name}: " + (f"group {p.group}: " if p.group is not None else "") + p.line()
+            if p.kind in kinds and line not in lines:
+                lines.append(line)
+    return lines
+
+
 def _notice(problems: list[str], cautions: list[str] = ()) -> ProblemNotice | None:
     if not problems and not cautions:
         return None
@@ -43,18 +58,27 @@ def _fit_notice(result) -> ProblemNotice | None:
 
 _COMPARISON_ROWS = ("Admissible", "Free parameters", "Chi-square", "df", "p", "CFI", "TLI", "RMSEA",
                     "  90% interval", "SRMR", "AIC", "BIC")
-_ROBUST_ROWS = ("Scaled chi-square", "  scaling factor", "  p", "Robust CFI", "Robust TLI", "Robust RMSEA",
-                "  90% interval")
 _COMPARISON_VALUES = ("Admissible", "Free parameters", "Chi-square", "df", "p", "CFI", "TLI", "RMSEA",
                       "RMSEA 90% lower", "RMSEA 90% upper", "SRMR", "AIC", "BIC")
-_ROBUST_VALUES = ("Scaled chi-square", "Scaling factor", "Scaled p", "Robust CFI", "Robust TLI", "Robust RMSEA",
-                  "Robust RMSEA 90% lower", "Robust RMSEA 90% upper")
 
 
-def _comparison_cells(r, robust_rows: bool) -> tuple[list[str], list]:
-    """A model's column of the comparison table, as text and as numbers."""
-    width = len(_COMPARISON_ROWS) + (len(_ROBUST_ROWS) if robust_rows else 0)
-    values_width = len(_COMPARISON_VALUES) + (len(_ROBUST_VALUES) if robust_rows else 0)
+def _robust_rows(test) -> tuple[str, ...]:
+    """The rows of a robust test in the comparison table; its pieces named as the fit's table names them."""
+    return (f"Scaled chi-square ({test.label})", f"  {test.correction}", "  p", "Robust CFI", "Robust TLI",
+            "Robust RMSEA", "  90% interval")
+
+
+def _robust_values(test) -> tuple[str, ...]:
+    return ("Scaled chi-square", *(name.capitalize() for name in test.pieces), "Scaled p", "Robust CFI", "Robust TLI",
+            "Robust RMSEA", "Robust RMSEA 90% lower", "Robust RMSEA 90% upper")
+
+
+def _comparison_cells(r, test) -> tuple[list[str], list]:
+    """A model's column of the comparison table, as text and as numbers; ``test``: the robust test of the
+    comparison (None without one)."""
+    robust_rows = test is not None
+    width = len(_COMPARISON_ROWS) + (len(_robust_rows(test)) if robust_rows else 0)
+    values_width = len(_COMPARISON_VALUES) + (len(_robust_values(test)) if robust_rows else 0)
     if r.fit is None or not r.converged:
         return [_admissible_cell(r)] + [""] * (width - 1), [_admissible_cell(r)] + [None] * (values_width - 1)
     f = r.fit
@@ -68,14 +92,14 @@ def _comparison_cells(r, robust_rows: bool) -> tuple[list[str], list]:
     if robust_rows:
         rb = r.robust
         if rb is None:
-            cells += [""] * len(_ROBUST_ROWS)
-            values += [None] * len(_ROBUST_VALUES)
+            cells += [""] * len(_robust_rows(test))
+            values += [None] * len(_robust_values(test))
         else:
             rl, rh = rb.rmsea_robust_ci90
-            cells += [f"{rb.chi_square_scaled:.3f}", num(rb.scaling_factor), p_value(rb.p_value_scaled),
+            cells += [f"{rb.chi_square_scaled:.3f}", T.correction_text(rb), p_value(rb.p_value_scaled),
                       unit(rb.cfi_robust), unit(rb.tli_robust), unit(rb.rmsea_robust), f"[{unit(rl)}, {unit(rh)}]"]
-            values += [rb.chi_square_scaled, rb.scaling_factor, rb.p_value_scaled, rb.cfi_robust, rb.tli_robust,
-                       rb.rmsea_robust, rl, rh]
+            values += [rb.chi_square_scaled, *(value for _, value in rb.pieces), rb.p_value_scaled, rb.cfi_robust,
+                       rb.tli_robust, rb.rmsea_robust, rl, rh]
     return cells, values
 
 
@@ -83,6 +107,30 @@ def _design_lines(result) -> tuple[str, ...]:
     """The sampling design of a fit in one line (none without a design)."""
     design = getattr(result, "design", None)
     return (design.sentence(result.method.full_information, result.method.ordinal),) if design is not None else ()
+
+
+BOUNDARY_CAUTION = ("values on the boundary of what the general model allows, so the chi-square difference does not "
+                    "follow the usual chi-square distribution (Self & Liang 1987; Stoel, Garre, Dolan & van den "
+                    "Wittenboer 2006)")
+
+
+def boundary_note(tests) -> str:
+    """The note under a difference-test table whose restricted model sits on the boundary: what lies there, why the
+    printed p-values are not exact, and the mixture's p-value when one parameter lies there."""
+    what = "; ".join(tests[0].boundary)
+    mixture = [t for t in tests if not missing(t.boundary_p_value)]
+    if mixture:
+        found = ", ".join(f"p {p_phrase(t.boundary_p_value)} for the {t.method}" for t in mixture)
+        reading = (f"With one parameter on the boundary the difference follows the 50:50 mixture of chi-square "
+                   f"distributions with {mixture[0].df_difference - 1} and {mixture[0].df_difference} df (Self & Liang "
+                   f"1987; Stram & Lee 1994), which gives {found}"
+                   + (" (for the scaled differences as an approximation)" if len(mixture) > 1 else "")
+                   + ": read those, not the p-values marked *.")
+    else:
+        reading = ("Its distribution depends on the model here (several parameters on the boundary, or loadings that the "
+                   "restricted model leaves undefined), so no exact p-value is given: read the p-values marked * as "
+                   "rough, and weigh the models also by their fit indices, AIC and BIC.")
+    return f"* On the boundary: {what}: {BOUNDARY_CAUTION}. {reading}"
 
 
 def comparison_report(comparison) -> Report:
@@ -101,6 +149,7 @@ def comparison_report(comparison) -> Report:
                  f"is not admissible: that is no reason to prefer it." for name, indices in lowest.items()]
     total = comparison.n_obs + comparison.rows_dropped
     cautions = [p.line() for p in comparison.problems]  # the data's, first
+    cautions += _caution_lines(named)
     full_information = comparison.missing is MissingData.FULL_INFORMATION
     if comparison.rows_dropped > 0.05 * total and not (full_information or comparison.missing is MissingData.PAIRWISE):
         cautions.append(f"{comparison.rows_dropped} of {total} rows ({100 * comparison.rows_dropped / total:.0f}%) miss an "
@@ -118,14 +167,13 @@ def comparison_report(comparison) -> Report:
                      f"answer on any model's variables left out).")
     lines = (rows_line, *_design_lines(comparison.results[0]))
     # one column per model, one row per index: readable in 80 columns for the usual two to four models
-    robust_rows = any(r.robust is not None for r in comparison.results)
-    cells = [_comparison_cells(r, robust_rows) for r in comparison.results]
-    tests = sorted({r.robust.test.label for r in comparison.results if r.robust is not None})
-    scaled = f"Scaled chi-square ({', '.join(tests)})" if tests else _ROBUST_ROWS[0]  # the robust test named
-    labels = _COMPARISON_ROWS + ((scaled, *_ROBUST_ROWS[1:]) if robust_rows else ())
+    # every model of a comparison has the same robust test (or none): the estimator and rows are shared
+    test = next((r.robust.test for r in comparison.results if r.robust is not None), None)
+    cells = [_comparison_cells(r, test) for r in comparison.results]
+    labels = _COMPARISON_ROWS + (_robust_rows(test) if test is not None else ())
     rows = [[label, *[c[0][k] for c in cells]] for k, label in enumerate(labels)]
     bad = any(r.converged and not r.admissible for r in comparison.results)
-    value_columns = ["Model", *_COMPARISON_VALUES, *(_ROBUST_VALUES if robust_rows else ())]
+    value_columns = ["Model", *_COMPARISON_VALUES, *(_robust_values(test) if test is not None else ())]
     tables = [_table("model_fit", "Fit of each model", [("", "l")] + [(name, "r") for name in comparison.names], rows,
                      flagged=(0,) if bad else (),
                      values=(value_columns, [[name, *c[1]] for name, c in zip(comparison.names, cells)]))]
@@ -135,19 +183,27 @@ def comparison_report(comparison) -> Report:
     notes = []
     for k, ((restricted, general), found) in enumerate(pairs.items()):  # one small table per nested pair
         rows, values = [], []
+        boundary = found[0].boundary
         for t in found:
             if t.not_computed:
                 rows.append([t.method, f"not computed ({t.df_difference})", "", "", ""])
                 notes.append(f"{t.method}: not computed: {t.not_computed}.")
             else:
-                rows.append([t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})", p_value(t.p_value),
-                             signed(t.delta_cfi), signed(t.delta_rmsea)])
+                rows.append([t.method, f"{t.chi_square_difference:.3f} ({t.df_difference})",
+                             p_value(t.p_value) + (" *" if boundary else ""), signed(t.delta_cfi), signed(t.delta_rmsea)])
             values.append([t.method, None if t.not_computed else t.chi_square_difference, t.df_difference,
-                           None if t.not_computed else t.p_value, t.delta_cfi, t.delta_rmsea, t.not_computed])
+                           None if t.not_computed else t.p_value, t.delta_cfi, t.delta_rmsea, t.not_computed,
+                           "; ".join(t.boundary), None if missing(t.boundary_p_value) else t.boundary_p_value])
+        if boundary:
+            cautions.append(f"{restricted} against {general}: the restricted model has {'; '.join(boundary)}: "
+                            f"{BOUNDARY_CAUTION}; read the p-values of this comparison as approximate (see the note "
+                            f"under its table).")
         tables.append(_table(f"difference_tests_{k + 1}", f"{restricted} (restricted) against {general}: difference tests",
                              [("Test", "l"), ("Difference (df)", "r"), ("p", "r"), ("\u0394CFI", "r"), ("\u0394RMSEA", "r")],
-                             rows, values=(["Test", "Chi-square difference", "df difference", "p", "\u0394CFI",
-                                            "\u0394RMSEA", "Not computed because"], values)))
+                             rows, boundary_note(found) if boundary else None,
+                             values=(["Test", "Chi-square difference", "df difference", "p", "\u0394CFI",
+                                      "\u0394RMSEA", "Not computed because", "On the boundary",
+                                      "p, one parameter on the boundary"], values)))
     for n in comparison.not_nested:
         advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
         notes.append(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
@@ -155,7 +211,7 @@ def comparison_report(comparison) -> Report:
         notes.append(CHANGE_GUIDES)
     notes += list(comparison.notes)
     return Report(ResultKind.COMPARE, "Model comparison", _notice(problems, cautions), lines, tuple(tables),
-                  tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE))
+                  tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), comparison_paragraph(comparison))
 
 
 # ---------------------------------------------------------------- invariance
@@ -183,10 +239,10 @@ CONFIGURAL_NOTE = ("The configural model holds when it fits by the guide values 
                    "Bentler 1999). Change-in-fit guides are common practice: CFI falling by no more than .010 (Cheung & "
                    "Rensvold 2002), RMSEA rising by less than .015, SRMR by less than .030 for loadings and .010 after "
                    "(Chen 2007). All guides are conventions, not laws.")
-ADJUSTED_NOTE = ("Ordinal items: chi-square, CFI and RMSEA come from the scale-shifted adjusted statistic, and each "
-                 "difference test is adjusted in the same way (Asparouhov & Muthen 2006). The adjusted statistic's "
-                 "scale and shift are estimated anew for each model, so it can fall when constraints are added: "
-                 "compare steps by the difference tests, not by the statistics or indices of the levels.")
+ADJUSTED_NOTE = (f"Ordinal items: chi-square, CFI and RMSEA come from the {FitTest.SCALE_SHIFTED.label} statistic, and "
+                 f"each difference test is the {DifferenceMethod.SCALE_SHIFTED}. The adjusted statistic's "
+                 f"{FitTest.SCALE_SHIFTED.correction} are estimated anew for each model, so it can fall when constraints "
+                 f"are added: compare steps by the difference tests, not by the statistics or indices of the levels.")
 
 
 def invariance_report(result) -> Report:
@@ -277,9 +333,10 @@ def invariance_report(result) -> Report:
     elif result.latent_note:
         notes.append(result.latent_note)
     inadmissible = any(s.result.converged and not s.result.admissible for s in result.steps)
-    notice = None if not result.warnings else ProblemNotice(
-        SOME_NOT_ADMISSIBLE if inadmissible else T.CAUTION, tuple(result.warnings), inadmissible)
     first = result.steps[0].result
+    warnings = tuple(result.warnings) + tuple(_caution_lines([(f"the {result.steps[0].level} model", first)]))
+    notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else T.CAUTION, warnings,
+                                                     inadmissible)
     lines = (f"Reference group (factor means fixed at zero): {result.groups[0]}",
              f"{first.n_obs} rows analysed ({', '.join(f'{g.label}: {g.data.n_obs}' for g in first.groups)}); "
              f"estimation: {first.estimator}",
@@ -302,10 +359,11 @@ def _replication_figures(result, adjusted: bool) -> tuple:
 
 def replication_report(replications) -> Report:
     reps = list(getattr(replications, "replications", None) or [replications])
-    problems, tables, notes = [], [], []
+    problems, cautions, tables, notes = [], [], [], []
     for k, rep in enumerate(reps):
         problems += _problem_lines([(f"the calibration fit ({rep.calibration})", rep.calibration_result),
                                     (f"the loose refit ({rep.validation})", rep.loose)])
+        cautions += _caution_lines([(f"the calibration fit ({rep.calibration})", rep.calibration_result)])
         cal = _replication_figures(rep.calibration_result, rep.adjusted)
         rows = [[f"Calibration fit (N = {rep.calibration_result.n_obs})", f"{cal[0]:.3f}", str(cal[1]),
                  p_value(cal[2]), unit(cal[3]), unit(cal[4])]]
@@ -331,12 +389,12 @@ def replication_report(replications) -> Report:
                                    f"{rep.cvi_saturated:.4f} (smaller is better).", tuple(flagged),
                              values=(["Check", "N", "Chi-square", "df", "p", "RMSEA", "CFI"], values)))
     if any(rep.adjusted for rep in reps):
-        notes.append("Ordinal items: every chi-square, RMSEA and CFI is the scale-shifted (mean-and-variance adjusted) "
-                     "one of the least-squares fit; the tight check compares the validation sample's polychoric "
+        notes.append(f"Ordinal items: every chi-square, RMSEA and CFI is the {FitTest.SCALE_SHIFTED.label} one of "
+                     "the least-squares fit; the tight check compares the validation sample's polychoric "
                      "correlations with those the calibration estimates imply, and the cross-validation index is the "
                      "least-squares discrepancy with the validation sample's weights.")
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
-    return Report(ResultKind.REPLICATE, title, _notice(problems), (), tuple(tables), tuple(notes),
+    return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), (), tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE))
 
 
@@ -439,7 +497,7 @@ def cutoffs_report(cut) -> Report:
                   f"and RMSEA, of this model and of every sample, come from the {cut.statistic} statistic; SRMR from "
                   f"the polychoric correlations.",)
         if cut.correct_rejected is not None:
-            lines += (f"That adjusted test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
+            lines += (f"That test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
                       f"{cut.converged_correct} samples drawn from it (nominal 5%).",)
     return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", _fit_notice(result), lines,
                   (table,), tuple(notes) + tuple(result.warnings), ("These cutoffs hold for this model, sample size and kind of misspecification "
@@ -476,7 +534,7 @@ def _ordinal_power_lines(result) -> list[str]:
         return []
     return [f"Ordinal items: latent responses cut at the population thresholds; each data set fitted by "
             f"{result.ordinal} on its thresholds and polychoric correlations, with robust standard errors.",
-            f"The adjusted (scale-shifted) test rejected the true model at alpha {unit(result.alpha, 2)} in "
+            f"The {ADJUSTED_TEST} test rejected the true model at alpha {unit(result.alpha, 2)} in "
             f"{100 * result.model_rejected:.1f}% of the converged replications (nominal {100 * result.alpha:g}%)."]
 
 
@@ -508,7 +566,7 @@ def power_curve_report(curve) -> Report:
     first = curve.results[0]
     lines = ["Converged: " + ", ".join(f"{r.converged} of {r.replications} at N = {r.n_obs}" for r in curve.results) + "."]
     if first.ordinal:
-        lines += [_ordinal_power_lines(first)[0], "The adjusted test rejected the true model at alpha "
+        lines += [_ordinal_power_lines(first)[0], f"The {ADJUSTED_TEST} test rejected the true model at alpha "
                   f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {r.n_obs}"
                                                            for r in curve.results) + " of the converged replications."]
     if first.defaulted:

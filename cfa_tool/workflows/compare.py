@@ -8,7 +8,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (choose_missing_handling, design_test, load_spec, make_options, moments_for,
+from cfa_tool.pipeline.inputs import (_described, choose_missing_handling, design_test, load_spec, make_options, moments_for,
                                       odd_value_problems, odd_values_named,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_row_options, summary_source, with_design)
@@ -24,7 +24,8 @@ from cfa_tool.inference.robust import robust_parts
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
-from cfa_tool.workflows.nesting import DifferenceTest, difference_test, is_nested, scaled_difference_tests
+from cfa_tool.workflows.nesting import (DifferenceTest, boundary_of, difference_test, is_nested,
+                                       scaled_difference_tests)
 from cfa_tool.views import Presentable
 
 
@@ -153,6 +154,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             data_groups.append(groups)
             with estimation_of(f"model {name}"):
                 result = fit_moments(spec, groups, fit_options, group_column=group)
+            result = _described(result, spec, tuple(label for label, _ in groups) if group is not None else None)
             results.append(with_design(result, design_summary(complete, design, [m for _, m in groups]))
                            if design is not None else result)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
@@ -166,6 +168,8 @@ def _compare_ordinal(specs, names, complete, source, group, reference_group, fit
 
     estimations, results = fit_ordinal_models(specs, complete, source, group, reference_group, fit_options,
                                               ordinal_items, method, design, pairwise)
+    results = [_described(r, spec, tuple(g.label for g in r.groups) if group is not None else None, ordinal_items)
+               for r, spec in zip(results, specs)]
     def test_pair(a: int, b: int) -> tuple[list[DifferenceTest], str]:
         test, reason = ordinal_difference_test(estimations[a], estimations[b], results[a], results[b], names[a], names[b])
         return ([test] if test is not None else []), reason
@@ -186,7 +190,7 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
     for spec, name in zip(specs, names):
         check_columns(spec, list(moments.names), moments.source)
         with estimation_of(f"model {name}"):
-            results.append(fit_moments(spec, moments, fit_options))
+            results.append(_described(fit_moments(spec, moments, fit_options), spec, None))
     tests, not_nested = _pairwise_tests(specs, names, results, [[(None, moments)]] * len(specs))
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), moments.n_obs, 0)
 
@@ -234,7 +238,8 @@ def _each_pair(names, results, test_pair, specs, likelihood: bool) -> tuple[list
                 continue
             found, reason = test_pair(a, b)
             if found:
-                tests.extend(found)
+                boundary = boundary_of(specs[a], results[a], specs[b], results[b])
+                tests.extend(boundary.mark(t) for t in found)
             else:
                 if not likelihood:
                     reason += ("; AIC and BIC do not exist for least-squares fits of ordinal items, so no "

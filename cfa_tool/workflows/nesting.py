@@ -7,7 +7,7 @@ them exactly (minimum discrepancy zero) and R has more degrees of freedom.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from cfa_tool.numerics import distributions as dist
 
@@ -31,11 +31,132 @@ class DifferenceTest:
     delta_cfi: float
     delta_rmsea: float
     not_computed: str = ""  # why the statistic could not be computed ('' when it was)
+    # what the restricted model fixes on the boundary of the general model's space (in words; empty when nothing):
+    # the difference then does not follow the chi-square distribution of ``p_value``
+    boundary: tuple[str, ...] = ()
+    # p from the 50:50 mixture of chi-square(df - 1) and chi-square(df) when exactly one parameter lies on the
+    # boundary (Self & Liang 1987); NaN otherwise
+    boundary_p_value: float = float("nan")
 
     def to_dict(self) -> dict:
         out = clean(dict(self.__dict__))
         out["not_computed"] = self.not_computed or None
         return out
+
+
+@dataclass(frozen=True)
+class Boundary:
+    """What a restricted model fixes on the boundary of the general model's parameter space: factors merged (their
+    correlation at 1, a factor covariance matrix of lower rank), a factor left out (its variance at 0), a variance
+    fixed at 0 or a correlation fixed at +/-1.  The chi-square difference then does not follow the usual chi-square
+    distribution (Self & Liang 1987; Stoel, Garre, Dolan & van den Wittenboer 2006).  ``single``: exactly one
+    parameter lies on the boundary and every parameter stays identified, so that the difference follows the 50:50
+    mixture of chi-square(df - 1) and chi-square(df) (Self & Liang 1987; Stram & Lee 1994)."""
+
+    parts: tuple[str, ...] = ()
+    single: bool = False
+
+    def __bool__(self) -> bool:
+        return bool(self.parts)
+
+    def mark(self, test: DifferenceTest) -> DifferenceTest:
+        """``test`` with the boundary said, and the mixture's p-value when it applies."""
+        if not self.parts:
+            return test
+        p = (dist.boundary_mixture_sf(test.chi_square_difference, test.df_difference)
+             if self.single and not test.not_computed and test.df_difference > 0 else float("nan"))
+        return replace(test, boundary=self.parts, boundary_p_value=p)
+
+
+def _first_order_items(spec: Spec) -> dict[str, frozenset[str]]:
+    """Each factor with items among its indicators, and those items."""
+    latent = set(spec.factor_names)
+    out: dict[str, set[str]] = {}
+    for factor in spec.factors:
+        items = {i.text for i in factor.indicators if i.text not in latent}
+        if items:
+            out.setdefault(factor.name.text, set()).update(items)
+    return {f: frozenset(items) for f, items in out.items()}
+
+
+def _cross_cutting(factor: str, items: dict[str, frozenset[str]], spec: Spec) -> bool:
+    """Whether ``factor`` is a method factor or one whose every item loads on another factor too (a wording factor
+    beside traits, a bifactor model's factors): when the restricted model has no factor of exactly its items, it
+    is left out, not merged with the factors its items also load on."""
+    others = set().union(*(i for f, i in items.items() if f != factor))
+    return factor in spec.method_factors or items[factor] <= others
+
+
+def _count(n: int, noun: str) -> str:
+    return f"{n} {noun}" + ("" if n == 1 else "s")
+
+
+def _listed(names: list[str]) -> str:
+    return names[0] if len(names) == 1 else ", ".join(names[:-1]) + " and " + names[-1]
+
+
+def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec, general: FitResult) -> Boundary:
+    """What ``restricted`` (nested in ``general``) fixes on the boundary of ``general``'s parameter space, read from
+    the two models' structures and the restricted model's fixed values, never from their names or text:
+
+    * a factor of the general model belongs to the factor of the restricted model with exactly its items, or else
+      (unless it is a method factor or every item of it loads on another factor too) to the one holding more than
+      half of its items; two or more factors belonging to one restricted factor are merged, which fixes their
+      correlations at 1 (a factor covariance matrix of rank k - 1 lower for k merged; one merge of two factors is
+      one parameter on the boundary);
+    * a factor belonging to none is left out: its variance is 0 and its loadings are then not identified, so no
+      mixture applies; so is a factor of an exploratory block of the general model when the restricted model has
+      fewer factors on the block's items (the likelihood-ratio test of the number of factors is not chi-square
+      distributed then either; Hayashi, Bentler & Yuan 2007);
+    * a variance the restricted model fixes at 0, or a covariance it fixes at a correlation of +/-1, where the
+      general model estimates it (one parameter each; a factor's variance at 0 leaves its loadings unidentified)."""
+    parts: list[str] = []
+    on_boundary, identified = 0, True
+    items_r, items_g = _first_order_items(restricted_spec), _first_order_items(general_spec)
+    for block in general_spec.exploratory:  # exploratory blocks: their factors all load on every item of the block
+        block_items = set(block.item_names)
+        kept = sum(1 for items in items_r.values() if items & block_items)
+        if kept < len(block.factors):
+            parts.append(f"{_count(len(block.factors) - kept, 'factor')} of the exploratory block of "
+                         f"{_listed(list(block.factor_names))} left out "
+                         f"({'its' if len(block.factors) - kept == 1 else 'their'} loadings at 0)")
+            identified = False
+        for f in block.factor_names:
+            items_g.pop(f, None)
+    owner: dict[str, list[str]] = {}
+    exact = {items: r for r, items in items_r.items()}
+    for g, items in items_g.items():
+        best = max(items_r, key=lambda r: len(items & items_r[r]), default=None)
+        if items in exact:
+            owner.setdefault(exact[items], []).append(g)
+        elif (best is not None and 2 * len(items & items_r[best]) > len(items)
+              and not _cross_cutting(g, items_g, general_spec)):
+            owner.setdefault(best, []).append(g)
+        elif items_r:
+            parts.append(f"factor {g} left out (its variance fixed at 0)")
+            identified = False
+    for r, merged in owner.items():
+        if len(merged) > 1:
+            parts.append(f"factors {_listed(merged)} merged into {r} (their correlation{'s' if len(merged) > 2 else ''} "
+                         f"fixed at 1)")
+            on_boundary += len(merged) - 1
+    free_in_general = {(e.kind, frozenset(e.variables) if "covariance" in e.kind else e.variables, e.group)
+                       for e in general.estimates if e.free}
+    for e in restricted.estimates:
+        key = (e.kind, frozenset(e.variables) if "covariance" in e.kind else e.variables, e.group)
+        if e.free or key not in free_in_general:
+            continue
+        where = f" in group {e.group}" if e.group is not None else ""
+        if e.kind in ("factor_variance", "residual_variance") and e.estimate == 0.0:
+            parts.append(f"the {'residual ' if e.kind == 'residual_variance' else ''}variance of {e.variables[0]} fixed "
+                         f"at 0{where}")
+            on_boundary += 1
+            identified = identified and e.kind == "residual_variance"
+        elif e.kind in ("factor_covariance", "residual_covariance") and abs(abs(e.standardized) - 1.0) < 1e-6:
+            parts.append(f"the {'residual ' if e.kind == 'residual_covariance' else ''}correlation of "
+                         f"{_listed(list(e.variables))} fixed at {'-1' if e.standardized < 0 else '1'}{where}")
+            on_boundary += 1
+    return Boundary(tuple(parts), single=identified and on_boundary == 1)
 
 
 def difference_test(restricted: FitResult, general: FitResult, restricted_name: str, general_name: str) -> DifferenceTest:

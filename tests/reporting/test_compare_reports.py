@@ -67,3 +67,32 @@ def test_ordinal_comparison_counts_free_parameters_as_fit_does():
         alone = cfa_tool.fit(model, data, ordinal="all")
         assert result.fit.n_free_parameters == alone.fit.n_free_parameters
         assert result.fit.df == alone.fit.df
+
+
+def test_ordinal_comparison_names_the_adjusted_test_and_its_pieces_as_fit_does():
+    """One vocabulary: compare's table names the adjusted test's pieces as fit's table does ('scale and shift', not
+    a 'scaling factor' that does not make the statistic), with the values fit reports for the same model."""
+    import cfa_tool
+    from cfa_tool.reporting import tables as T
+    from cfa_tool.workflows.simulation import simulate
+
+    two = "factor a: y1, y2, y3, y4\nfactor b: y5, y6, y7, y8\n"
+    one = "factor a: y1, y2, y3, y4, y5, y6, y7, y8\n"
+    data = simulate(two, 800, seed=3, categories=4).frame
+    comparison = compare([one, two], data, ordinal="all")
+    alone = cfa_tool.fit(two, data, ordinal="all")
+    fit_row = next(row for row in T.fit_table(alone).rows if row[0].strip() == alone.robust.test.correction)
+    table = comparison_report(comparison).tables[0]
+    compare_row = next(row for row in table.rows if row[0].strip() == alone.robust.test.correction)
+    assert fit_row[0].strip() == compare_row[0].strip() == "scale and shift"
+    assert compare_row[2] == fit_row[1]  # the second model's column: the same scale and shift as its own fit
+    # the pieces make the statistic: T* = scale x T + shift (Asparouhov & Muthen 2010)
+    r = comparison.results[1]
+    assert r.fit.chi_square * r.robust.scale + r.robust.shift == pytest.approx(r.robust.chi_square_scaled, rel=1e-12)
+    text = _text(comparison)
+    assert "scaling factor" not in text
+    values = table.to_dict()
+    assert "Scale" in str(values) and "Shift" in str(values) and "Scaling factor" not in str(values)
+    # the difference test carries the same name as the fit's test, with the authors of the difference version
+    test_name = comparison.tests[0].method.value
+    assert test_name.startswith(alone.robust.test.label.split(" (")[0]) and "Asparouhov & Muthen 2006" in test_name

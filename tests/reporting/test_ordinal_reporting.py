@@ -29,7 +29,7 @@ def test_scale_and_shift_reproduce_the_statistic(ordinal_fit):
     assert out["scale"] == pytest.approx(r.scale) and out["shift"] == pytest.approx(r.shift)
     row = next(row for row in T.fit_table(result).rows if row[0].strip() == "scale and shift")
     assert row[1] == f"{r.scale:.3f} and {r.shift:.3f}"
-    assert "scale-shifted statistics of the model and of the baseline" in T.fit_table(result).note
+    assert "adjusted statistics of the model and of the baseline" in T.fit_table(result).note
 
 
 def test_ordinal_srmr_is_over_the_off_diagonal_correlations(ordinal_fit):

@@ -1,0 +1,107 @@
+"""Method factors that carry next to nothing.
+
+A method factor stands beside the traits for what some items share in the way they are answered (the
+reverse-keyed items' wording factor), and a bifactor-like factor is one whose every item loads on another
+factor too.  When every standardized loading of such a factor is small (below .20 in absolute value: common
+practice, the size below which a loading is usually read as negligible), its items share little beyond the
+other factors they load on, and the factor is hardly distinguishable from no factor at all.
+
+Where the factor is uncorrelated with every other factor of its items, each item's explained variance splits
+into the factor's part and the others', so the factor's share of its items' common variance is
+
+    ECV_f = sum_i lambda_if^2 / sum_i R^2_i
+
+over its items i, with lambda the standardized loadings (explained common variance; Reise 2012, Rodriguez, Reise
+& Haviland 2016).  With correlated factors no such split exists and the share is not computed.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+#: standardized loadings below this size (in absolute value) are read as negligible (common practice)
+SMALL_LOADING = 0.20
+
+
+def cross_cutting_factors(loadings: dict[str, set[str]], declared: frozenset[str]) -> list[str]:
+    """Factors that stand beside others on the same items: declared method factors, and factors whose every item
+    loads on another factor too.  ``loadings``: each factor's items (observed indicators only)."""
+    out = []
+    for factor, items in loadings.items():
+        if not items:
+            continue
+        others = set().union(*(i for f, i in loadings.items() if f != factor))
+        if factor in declared or items <= others:
+            out.append(factor)
+    return out
+
+
+def weak_factor_problems(estimates, latent: tuple[str, ...], observed: tuple[str, ...], groups,
+                         declared: frozenset[str], leave_out: frozenset[str] = frozenset()) -> list[Problem]:
+    """A caution for every method or bifactor-like factor (see :func:`cross_cutting_factors`) whose standardized
+    loadings are all below SMALL_LOADING in absolute value, per group.  ``estimates``: the result's EstimateRows;
+    ``groups``: its GroupResults (label, r_squared, latent_covariance); ``leave_out``: factors not to judge (those
+    of exploratory blocks, whose rotated loadings are reported elsewhere)."""
+    items_of = set(observed)
+    by_group: dict = {}
+    for r in estimates:  # one pass: a fit of many groups has thousands of rows
+        if r.kind == "loading" and r.variables[1] in items_of:
+            by_group.setdefault(r.group, []).append(r)
+    out = []
+    for group in groups:
+        rows = by_group.get(group.label, [])
+        loadings: dict[str, set[str]] = {}
+        for r in rows:
+            loadings.setdefault(r.variables[0], set()).add(r.variables[1])
+        for factor in cross_cutting_factors(loadings, declared):
+            if factor in leave_out:
+                continue
+            own = [r for r in rows if r.variables[0] == factor]
+            sizes = np.abs([r.standardized for r in own])
+            if not len(sizes) or not np.all(np.isfinite(sizes)) or sizes.max() >= SMALL_LOADING:
+                continue
+            share = _common_variance_share(factor, own, rows, group, latent)
+            kind = "method factor" if factor in declared else "factor"
+            beside = "" if factor in declared else ", whose every item loads on another factor too,"
+            explained = ("" if share is None else
+                         f" It explains {100 * share:.0f}% of its items' common variance (explained common variance; "
+                         f"Reise 2012), so its variance and any reliability of it are negligible.")
+            out.append(Problem(
+                ProblemKind.WEAK_METHOD_FACTOR, (f"factor_variance({factor})",), float(sizes.max()),
+                f"The {kind} {factor}{beside} has only small standardized loadings (at most {_size(sizes.max())} in size, "
+                f"below {_size(SMALL_LOADING)}: common practice): its items share little beyond the other factors they "
+                f"load on.{explained}",
+                f"Do not read {factor} as a substantive effect; fit the model without it and compare the two (the "
+                f"difference then sits on a boundary, which compare says), and report it as negligible if theory "
+                f"calls for keeping it.", group.label if len(groups) > 1 else None))
+    return out
+
+
+def _size(value: float) -> str:
+    """A loading's size as reports write it: '.19'."""
+    text = f"{value:.2f}"
+    if float(text) >= SMALL_LOADING > value:  # .1996 is not '.20'
+        text = f"{value:.3f}"
+    return text.removeprefix("0")
+
+
+def _common_variance_share(factor: str, own, rows, group, latent: tuple[str, ...]) -> float | None:
+    """ECV_f of the module docstring; None when the factor correlates with another factor of its items, or an
+    item's R-squared is missing."""
+    items = {r.variables[1] for r in own}
+    others = {r.variables[0] for r in rows if r.variables[1] in items and r.variables[0] != factor}
+    phi = group.latent_covariance
+    if phi is None:
+        return None
+    k = latent.index(factor)
+    for other in others:
+        j = latent.index(other)
+        scale = np.sqrt(abs(phi[k, k] * phi[j, j]))
+        if scale == 0 or abs(phi[k, j]) / scale > 1e-8:
+            return None
+    explained = [group.r_squared.get(x) for x in items]
+    if any(r2 is None or not np.isfinite(r2) for r2 in explained) or sum(explained) <= 0:
+        return None
+    return float(sum(r.standardized ** 2 for r in own) / sum(explained))

@@ -1,0 +1,100 @@
+"""A method factor (declared, or one whose every item loads on another factor too) whose standardized loadings are all
+below .20 in size (common practice) gets a caution naming it, with its share of its items' common variance (explained
+common variance; Reise 2012), in fit and in the reports of compare, invariance and replicate."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.reporting.fit_document import fit_report
+from cfa_tool.reporting.paragraph import methods_paragraph
+from cfa_tool.reporting.workflow_tables import comparison_report, invariance_report
+from cfa_tool.workflows.compare import compare
+from cfa_tool.workflows.invariance import invariance
+from tests.conftest import simulate_cfa
+
+TRAITS = "factor a: y1, y2, y3, y4\nfactor b: y5, y6, y7, y8\n"
+METHOD = "factor m: y2, y4, y6, y8\nmethod m\nuncorrelated m, a\nuncorrelated m, b\nscale m by variance\n"
+
+
+def _data(method_loading: float, n: int = 800, seed: int = 20261203) -> pd.DataFrame:
+    """Two traits correlating .4 with loadings .7, and a method factor on items 2, 4, 6, 8 (invented values)."""
+    L = np.zeros((8, 3))
+    L[:4, 0] = L[4:, 1] = 0.7
+    L[[1, 3, 5, 7], 2] = method_loading
+    phi = np.eye(3)
+    phi[0, 1] = phi[1, 0] = 0.4
+    return simulate_cfa(L, phi, np.diag(1.0 - np.diag(L @ phi @ L.T)), n, seed)
+
+
+def _weak(result):
+    return [p for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
+
+
+@pytest.fixture(scope="module")
+def weak_fit():
+    data = _data(0.05)
+    return cfa_tool.fit(TRAITS + METHOD, data), data
+
+
+def test_a_method_factor_with_small_loadings_gets_a_caution(weak_fit):
+    result, _ = weak_fit
+    (problem,) = _weak(result)
+    assert result.admissible  # a caution, not a reason to reject the solution
+    loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[0] == "m"]
+    assert max(map(abs, loadings)) < 0.20  # the rule (common practice)
+    assert "method factor m" in problem.explanation and "share little beyond" in problem.explanation
+    # explained common variance of m in its items (Reise 2012), from the implied covariance with numpy:
+    # R^2 of item i = 1 - theta_ii / sigma_ii; with m uncorrelated with a and b, m's part is lambda_im^2 (standardized)
+    sigma = result.groups[0].implied_covariance
+    theta = {r.variables[0]: r.estimate for r in result.estimates if r.kind == "residual_variance"}
+    items = ["y2", "y4", "y6", "y8"]
+    index = {x: k for k, x in enumerate(result.observed)}
+    r2 = [1 - theta[x] / sigma[index[x], index[x]] for x in items]
+    raw = {r.variables[1]: r.estimate for r in result.estimates if r.kind == "loading" and r.variables[0] == "m"}
+    own = [raw[x] ** 2 / sigma[index[x], index[x]] for x in items]  # variance of m fixed at 1
+    share = sum(own) / sum(r2)
+    assert f"It explains {100 * share:.0f}% of its items' common variance" in problem.explanation
+    assert any("method factor m" in line for line in fit_report(result).notice.lines)
+    assert "(m) whose standardized loadings are all below .20 in size" in methods_paragraph(result)
+
+
+def test_a_method_factor_that_carries_something_gets_none():
+    result = cfa_tool.fit(TRAITS + METHOD, _data(0.5))
+    assert result.converged and not _weak(result)
+
+
+def test_an_undeclared_factor_beside_the_traits_is_judged_alike():
+    # not declared a method factor, but every item of m loads on a trait too (bifactor-like)
+    result = cfa_tool.fit(TRAITS + METHOD.replace("method m\n", ""), _data(0.05))
+    (problem,) = _weak(result)
+    assert "factor m, whose every item loads on another factor too," in problem.explanation
+
+
+def test_trait_factors_with_small_loadings_are_not_method_factors():
+    # a trait factor whose items load on it alone is not judged here (its small loadings are a different matter)
+    rng = np.random.default_rng(5)
+    data = pd.DataFrame(rng.standard_normal((300, 6)), columns=[f"y{i}" for i in range(1, 7)])
+    result = cfa_tool.fit("factor a: y1, y2, y3\nfactor b: y4, y5, y6\n", data)
+    assert not _weak(result)
+
+
+def test_compare_and_invariance_reports_carry_the_caution(weak_fit):
+    _, data = weak_fit
+    comparison = compare([TRAITS, TRAITS + METHOD], data)
+    lines = comparison_report(comparison).notice.lines
+    assert any("method factor m" in line and "share little beyond" in line for line in lines)
+    assert ("The solution of Model 2 has a factor beside the traits (m) whose standardized loadings are all below .20"
+            in comparison_report(comparison).paragraph)
+    # the restricted model leaves m out: its variance on the boundary (said beside the test)
+    assert comparison.tests[0].boundary == ("factor m left out (its variance fixed at 0)",)
+    # invariance: the configural model's caution (per group; 2000 rows a group, so that the weak factor stays small)
+    data = _data(0.05, n=4000)
+    grouped = data.assign(site=np.where(np.arange(len(data)) % 2 == 0, "east", "west"))
+    ladder = invariance(TRAITS + METHOD, grouped, group="site")
+    text = invariance_report(ladder).notice.lines
+    assert any("the configural model: group" in line and "method factor m" in line for line in text)

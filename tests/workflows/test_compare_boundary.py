@@ -1,0 +1,115 @@
+"""A restricted model that fixes a parameter of the general one on the boundary of its space (factors merged: their
+correlation at 1; a factor left out or a variance fixed at 0) is found from the two models' structures, said beside
+the test and in the cautions, and, with one parameter on the boundary, given the p-value of the 50:50 mixture of
+chi-square(df - 1) and chi-square(df) (Self & Liang 1987; Stram & Lee 1994; Stoel, Garre, Dolan & van den
+Wittenboer 2006), computed here by scipy."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+from scipy import stats
+
+from cfa_tool.reporting.numbers import p_phrase
+from cfa_tool.reporting.workflow_tables import comparison_report
+from cfa_tool.workflows.compare import compare
+from tests.conftest import simulate_cfa
+
+TWO = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\n"
+ONE = "factor g: y1, y2, y3, y4, y5, y6\n"
+
+
+def _rows(correlation: float, seed: int = 20261203, n: int = 400) -> pd.DataFrame:
+    # two factors correlating as given, loadings .7, residual variances .51 (invented population values)
+    L = np.zeros((6, 2))
+    L[:3, 0] = L[3:, 1] = 0.7
+    return simulate_cfa(L, np.array([[1.0, correlation], [correlation, 1.0]]), np.diag(np.full(6, 0.51)), n, seed)
+
+
+@pytest.fixture(scope="module")
+def data() -> pd.DataFrame:
+    return _rows(0.95)
+
+
+def test_two_factors_merged_into_one_get_the_mixture_p_value(data):
+    comparison = compare([ONE, TWO], data, test="satorra-bentler")
+    assert comparison.tests
+    for t in comparison.tests:
+        assert t.boundary == ("factors a and b merged into g (their correlation fixed at 1)",)
+        if t.not_computed:
+            continue
+        assert t.df_difference == 1
+        # Self & Liang (1987): .5 chi2(0) + .5 chi2(1), i.e. half the chi-square(1) tail
+        assert t.boundary_p_value == pytest.approx(0.5 * stats.chi2.sf(t.chi_square_difference, 1), rel=1e-10)
+        assert t.boundary_p_value == pytest.approx(t.p_value / 2, rel=1e-10)
+    report = comparison_report(comparison)
+    table = next(t for t in report.tables if t.key.startswith("difference_tests"))
+    assert all(row[2].endswith("*") for row in table.rows if row[2])
+    first = comparison.tests[0]
+    assert "50:50 mixture" in table.note and "Self & Liang 1987" in table.note
+    assert f"p {p_phrase(first.boundary_p_value)} for the likelihood ratio" in table.note
+    assert any("merged into g" in line and "Stoel" in line for line in report.notice.lines)
+    out = first.to_dict()
+    assert out["boundary"] == list(first.boundary) and out["boundary_p_value"] == pytest.approx(first.boundary_p_value)
+
+
+def test_a_residual_variance_fixed_at_zero_beside_an_interior_constraint(data):
+    # one parameter on the boundary and one inside: .5 chi2(1) + .5 chi2(2) (Self & Liang 1987)
+    restricted = TWO + "fix variance(y3) = 0\nequal loading(b, y5), loading(b, y6)\n"
+    comparison = compare([restricted, TWO], data)
+    (t,) = comparison.tests
+    assert t.df_difference == 2 and t.boundary == ("the residual variance of y3 fixed at 0",)
+    expected = 0.5 * stats.chi2.sf(t.chi_square_difference, 1) + 0.5 * stats.chi2.sf(t.chi_square_difference, 2)
+    assert t.boundary_p_value == pytest.approx(expected, rel=1e-10)
+
+
+def test_a_correlation_fixed_at_one_by_the_model_file(data):
+    scaled = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\nscale latent by variance\n"
+    comparison = compare([scaled + "fix covariance(a, b) = 1\n", scaled], data)
+    (t,) = comparison.tests
+    assert t.boundary == ("the correlation of a and b fixed at 1",)
+    assert t.boundary_p_value == pytest.approx(0.5 * stats.chi2.sf(t.chi_square_difference, 1), rel=1e-10)
+
+
+def test_a_factor_left_out_is_said_without_a_mixture(data):
+    # a method factor on y2, y5 beside the traits (variance scaling), left out of the restricted model: its loadings
+    # are not defined when its variance is 0, so no mixture applies (only the caution)
+    general = TWO + "factor m: y2, y3, y5, y6\nmethod m\nuncorrelated m, a\nuncorrelated m, b\nscale m by variance\n"
+    comparison = compare([TWO, general], data)
+    (t,) = comparison.tests
+    assert t.boundary == ("factor m left out (its variance fixed at 0)",)
+    assert np.isnan(t.boundary_p_value)
+    table = next(x for x in comparison_report(comparison).tables if x.key.startswith("difference_tests"))
+    assert "no exact p-value" in table.note
+
+
+def test_interior_constraints_are_not_on_the_boundary(data):
+    comparison = compare([TWO + "equal loading(a, y2), loading(a, y3)\n", TWO], data)
+    (t,) = comparison.tests
+    assert t.boundary == () and np.isnan(t.boundary_p_value)
+    report = comparison_report(comparison)
+    assert report.notice is None
+    table = next(x for x in report.tables if x.key.startswith("difference_tests"))
+    assert table.note is None and not table.rows[0][2].endswith("*")
+
+
+def test_ordinal_comparisons_say_it_too(data):
+    cut = data.apply(lambda column: pd.cut(column, [-np.inf, -0.5, 0.5, np.inf], labels=False) + 1)
+    comparison = compare([ONE, TWO], cut, ordinal="all")
+    (t,) = comparison.tests
+    assert t.boundary == ("factors a and b merged into g (their correlation fixed at 1)",)
+    assert t.boundary_p_value == pytest.approx(0.5 * stats.chi2.sf(t.chi_square_difference, 1), rel=1e-10)
+
+
+def test_fewer_factors_than_an_exploratory_block_is_said_without_a_mixture():
+    # one factor against an exploratory block of two: the second factor's loadings at 0, where the likelihood-ratio
+    # test of the number of factors is not chi-square distributed (Hayashi, Bentler & Yuan 2007)
+    data = _rows(0.6, seed=7, n=500)
+    comparison = compare([ONE, "exploratory factors f1, f2 from y1..y6\n"], data)
+    (t,) = comparison.tests
+    assert t.boundary == ("1 factor of the exploratory block of f1 and f2 left out (its loadings at 0)",)
+    assert np.isnan(t.boundary_p_value)
+    # the same number of factors, confirmatory against exploratory: nothing on the boundary
+    (same,) = compare([TWO, "exploratory factors f1, f2 from y1..y6\n"], data).tests
+    assert same.boundary == ()
