@@ -31,6 +31,12 @@ def unit(value, digits: int = 3) -> str:
     return text
 
 
+def index_text(value, digits: int = 3) -> str:
+    """A fit index as :func:`unit` prints it, or 'not defined' where its formula has no value (e.g. a TLI whose
+    baseline model fits no worse per degree of freedom than the model), never an empty place in a sentence."""
+    return "not defined" if missing(value) else unit(value, digits)
+
+
 def p_value(value) -> str:
     if missing(value):
         return ""

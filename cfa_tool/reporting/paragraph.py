@@ -17,7 +17,7 @@ from cfa_tool.method import DifferenceMethod, Information, FitTest, Items, Missi
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
-from cfa_tool.reporting.numbers import p_phrase, signed, unit
+from cfa_tool.reporting.numbers import index_text, p_phrase, signed, unit
 
 CHI = "\u03c7\u00b2"
 WORDS = {1: "one", 2: "two", 3: "three", 4: "four", 5: "five", 6: "six", 7: "seven", 8: "eight", 9: "nine", 10: "ten"}
@@ -261,11 +261,11 @@ def _fit_sentence(result) -> str:
         rl, rh = r.rmsea_robust_ci90
         pieces = ", ".join(f"{name} {value:.3f}" for name, value in r.pieces)
         return (f"The {_test_phrase(r.test)} gave {CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
-                f"({pieces}); robust CFI = {unit(r.cfi_robust)}, robust TLI = "
-                f"{unit(r.tli_robust)}, robust RMSEA = {unit(r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], "
+                f"({pieces}); robust CFI = {index_text(r.cfi_robust)}, robust TLI = "
+                f"{index_text(r.tli_robust)}, robust RMSEA = {index_text(r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], "
                 f"SRMR = {unit(f.srmr)}.")
-    return (f"The model fit was {CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {unit(f.cfi)}, "
-            f"TLI = {unit(f.tli)}, RMSEA = {unit(f.rmsea)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}.")
+    return (f"The model fit was {CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {index_text(f.cfi)}, "
+            f"TLI = {index_text(f.tli)}, RMSEA = {index_text(f.rmsea)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}.")
 
 
 def _weak_factor_sentence(result, subject: str) -> str:
@@ -375,10 +375,10 @@ def _fit_figures(result) -> str:
         return "was just-identified (0 df), so its fit could not be tested"
     if r is not None:
         low, high = r.rmsea_robust_ci90
-        return (f"{CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)}, robust CFI = {unit(r.cfi_robust)}, "
-                f"robust RMSEA = {unit(r.rmsea_robust)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}")
+        return (f"{CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)}, robust CFI = {index_text(r.cfi_robust)}, "
+                f"robust RMSEA = {index_text(r.rmsea_robust)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}")
     low, high = f.rmsea_ci90
-    return (f"{CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {unit(f.cfi)}, RMSEA = {unit(f.rmsea)}, "
+    return (f"{CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {index_text(f.cfi)}, RMSEA = {index_text(f.rmsea)}, "
             f"90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}")
 
 

@@ -10,7 +10,7 @@ import numpy as np
 from cfa_tool.assessment.reliability import Keying
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST
-from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, unit
+from cfa_tool.reporting.numbers import index_text, missing, num, p_phrase, p_value, unit
 from cfa_tool.reporting.remedies import Remedy
 
 GUIDE_NOTE = (
@@ -148,9 +148,9 @@ def fit_table(result) -> ReportTable:
     low, high = f.rmsea_ci90
     rows = [
         ["Chi-square test", f"{f.chi_square:.3f} on {f.df} df, p {p_phrase(f.p_value)}", "p > .05 (very sensitive to N)"],
-        ["CFI", unit(f.cfi), ">= .95"],
-        ["TLI", unit(f.tli), ">= .95"],
-        ["RMSEA [90% interval]", f"{unit(f.rmsea)} [{unit(low)}, {unit(high)}]", "<= .06"],
+        ["CFI", index_text(f.cfi), ">= .95"],
+        ["TLI", index_text(f.tli), ">= .95"],
+        ["RMSEA [90% interval]", f"{index_text(f.rmsea)} [{unit(low)}, {unit(high)}]", "<= .06"],
         ["  test of close fit (RMSEA <= .05)", f"p {p_phrase(f.rmsea_p_close)}", ""],
         ["SRMR", unit(f.srmr), "<= .08"],
     ]
@@ -166,8 +166,8 @@ def fit_table(result) -> ReportTable:
             [f"Scaled chi-square ({r.test.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, p {p_phrase(r.p_value_scaled)}",
              "the test to read for these data"],
             _correction_row(r),
-            ["Robust CFI / TLI", f"{unit(r.cfi_robust)} / {unit(r.tli_robust)}", ">= .95"],
-            ["Robust RMSEA [90% interval]", f"{unit(r.rmsea_robust)} [{unit(rlow)}, {unit(rhigh)}]", "<= .06"],
+            ["Robust CFI / TLI", f"{index_text(r.cfi_robust)} / {index_text(r.tli_robust)}", ">= .95"],
+            ["Robust RMSEA [90% interval]", f"{index_text(r.rmsea_robust)} [{unit(rlow)}, {unit(rhigh)}]", "<= .06"],
         ]
     rows.append(["Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", ""])
     if not missing(f.log_likelihood):  # least-squares estimators have no likelihood
