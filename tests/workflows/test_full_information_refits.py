@@ -205,3 +205,13 @@ def test_split_half_with_gaps_splits_every_row_with_an_answer(gappy):
     assert first.calibration_result.n_obs + first.loose.n_obs == len(gappy)
     assert first.loose.method.missing is MissingData.FULL_INFORMATION
     assert second.calibration_result.n_obs == first.loose.n_obs
+
+
+@pytest.mark.parametrize("command", ["bootstrap", "cutoffs", "replicate"])
+def test_the_help_of_the_refitting_commands_says_how_rows_with_gaps_are_refitted(command, capsys):
+    from cfa_tool.cli import main
+
+    with pytest.raises(SystemExit) as done:  # a bare percent sign in a help text once broke --help
+        main([command, "--help"])
+    assert done.value.code == 0
+    assert "every refit treats the rows as the fit does" in " ".join(capsys.readouterr().out.split())
