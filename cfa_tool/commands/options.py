@@ -129,8 +129,6 @@ def add_run_options(p: argparse.ArgumentParser) -> None:
 
 #: where the refits of a command use the complete rows only
 REFITS_AS_THE_FIT = "; every refit treats the rows as the fit does"
-REFITS_UNDER_A_DESIGN = (REFITS_AS_THE_FIT + ", except under a sampling design, where the refits use the complete rows "
-                         "only, so 'listwise' must be given when that leaves out more than 5%% of the rows")
 
 
 def add_incomplete_rows_option(p: argparse.ArgumentParser, where: str = "") -> None:

@@ -34,7 +34,7 @@ from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
 from cfa_tool.inference.standard_errors import observed_information, parameter_covariance, wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import Spec
-from cfa_tool.method import Estimator, FitMethod, FitTest, Information, MissingData
+from cfa_tool.method import Estimator, FitMethod, FitTest, Information, MissingData, WeightKind
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
@@ -496,15 +496,19 @@ def _replicate_results(table: ParameterTable, model: StructuredModel, groups: li
 
 def moments_from_rows(rows: np.ndarray, names: tuple[str, ...], source: str = "<replication>",
                       weights: np.ndarray | None = None, n_obs: int | None = None,
-                      full_information: bool = False) -> SampleMoments:
+                      full_information: bool = False, weight_kind: WeightKind = WeightKind.SAMPLING) -> SampleMoments:
     """Moments of complete ``rows``; with ``weights`` the weighted means and covariance (divisor the sum of
     the weights) and ``n_obs`` the N of the test statistic (default the number of rows).  With
     ``full_information`` the rows may have gaps (each answering some item): their saturated moments by EM,
-    the rows kept for the casewise likelihood (a DataError where they cannot be estimated)."""
+    the rows kept for the casewise likelihood, which ``weights`` (of ``weight_kind``) weight, carried as the
+    rows' design (Asparouhov 2005); a DataError where the moments cannot be estimated."""
     if full_information:
-        if weights is not None or n_obs is not None:
-            raise ValueError("full-information moments of weighted rows are not built")
-        return moments_with_gaps(rows, names, source)
+        moments = moments_with_gaps(rows, names, source, weights)
+        if weights is None:
+            return moments
+        from cfa_tool.data.sample_design import RowDesign
+
+        return replace(moments, n_obs=moments.n_obs if n_obs is None else n_obs, design=RowDesign(weights, weight_kind))
     n = len(rows) if n_obs is None else n_obs
     if weights is None:
         mean = rows.mean(axis=0)

@@ -23,7 +23,7 @@ from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summ
 from cfa_tool import options as opt
 from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.pipeline.continuous import LISTWISE_WARNING_SHARE, FitOptions, fit_moments
+from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import FitTest, MissingData, WeightKind, Weighting
@@ -538,30 +538,13 @@ def continuous_only(spec: Spec, command: str) -> Spec:
     return spec
 
 
-def refit_missing_handling(frame: pd.DataFrame, names: tuple[str, ...], missing, command: str,
-                           design: DesignColumns | None = None) -> tuple[MissingData, list[str]]:
+def refit_missing_handling(frame: pd.DataFrame, names: tuple[str, ...], missing) -> tuple[MissingData, list[str]]:
     """How a command that refits many samples of continuous items (bootstrap, cutoffs, replicate) treats rows
     with gaps, with fit's note: as fit does, full-information ML when a model variable has gaps (or when asked),
-    the complete rows when ``missing='listwise'`` (--incomplete-rows listwise).  Under a sampling ``design``
-    the refits use complete rows only (weighted full-information resamples are not built), so when that would
-    leave out more than LISTWISE_WARNING_SHARE of the rows it must be asked for; fewer are left out and the
-    report says how many."""
+    the complete rows when ``missing='listwise'`` (--incomplete-rows listwise)."""
     missing = None if missing is None else MissingData.parse(missing, "the handling of rows with missing answers")
-    if design is None:
-        options, notes = choose_missing_handling(FitOptions(missing=missing), frame, names, None)
-        return options.missing, notes
-    where = f"under a sampling design (the {design.names[0][0]} column '{design.names[0][1]}') '{command}'"
-    if missing is MissingData.FULL_INFORMATION:
-        raise OptionError(f"{where} refits the complete rows only, so full-information ML cannot apply; give "
-                          f"--incomplete-rows listwise, or leave out the design to refit every row by full-information ML")
-    if missing is not MissingData.LISTWISE:
-        gap = rows_with_gaps(frame, names)
-        if gap.sum() > LISTWISE_WARNING_SHARE * len(frame):
-            raise OptionError(f"{int(gap.sum())} of {len(frame)} rows miss some answers on model variables, and {where} "
-                              f"refits the complete rows only (full-information resamples of weighted rows are not "
-                              f"built yet); add --incomplete-rows listwise to use the {int((~gap).sum())} complete rows, "
-                              f"or leave out the design to refit every row by full-information ML")
-    return MissingData.LISTWISE, []
+    options, notes = choose_missing_handling(FitOptions(missing=missing), frame, names, None)
+    return options.missing, notes
 
 
 def without_exploratory_blocks(spec: Spec, command: str, why: str) -> Spec:

@@ -13,10 +13,11 @@ silently.  Resamples are refitted together, in batches (pipeline.continuous.repl
 each resample's draw comes from its own seed, so the results do not depend on the batches or
 the worker processes.
 
-A full-information fit (rows with gaps) is bootstrapped by resampling the rows with their gaps and refitting
-each resample by full-information ML (its saturated model by EM), one at a time; BCa's influence values are
-each row's casewise score through the observed Hessian (the analytic jackknife of the full-information
-estimate).  The Bollen-Stine transformation of rows with gaps (Enders 2002; Savalei & Yuan 2009) is not built,
+A full-information fit (rows with gaps) is bootstrapped by resampling the rows with their gaps (under a
+design, whole clusters with their rows' weights) and refitting each resample by full-information ML (its
+saturated model by EM), one at a time; BCa's influence values are each row's casewise score through the
+observed Hessian (the analytic jackknife of the full-information estimate), weighted and summed within
+clusters under a design.  The Bollen-Stine transformation of rows with gaps (Enders 2002; Savalei & Yuan 2009) is not built,
 so the Bollen-Stine p-value is refused with that reason (and left out, with the reason in the report, when not
 asked for).  A resample whose saturated model cannot be estimated (an item with fewer than two answers, a
 pair of items no row answers both) is counted apart from those that did not converge.
@@ -128,17 +129,27 @@ def _replicate(tasks: list) -> list:
 
 
 def _resample(rows: np.ndarray, names: tuple[str, ...], seed: int, design, gaps: bool = False):
+    """One resample's moments (``gaps``: of rows with gaps, for a full-information refit); under a design
+    sampling weights are rescaled to sum to the resample's rows with gaps, as the fit of those rows would
+    rescale them (the estimates do not depend on it)."""
     rng = np.random.default_rng(seed)
     if design is None:
         return moments_from_rows(rows[rng.integers(0, len(rows), len(rows))], names, full_information=gaps)
     if design.kind is WeightKind.FREQUENCY and design.clusters is None:
         counts = expanded_counts(design, rng)
         kept = counts > 0
-        return moments_from_rows(rows[kept], names, weights=counts[kept].astype(float), n_obs=int(counts.sum()))
+        return moments_from_rows(rows[kept], names, weights=counts[kept].astype(float), n_obs=int(counts.sum()),
+                                 full_information=gaps, weight_kind=design.kind)
     picked = resampled_rows(design, rng)
     w = design.weights[picked]
-    n_obs = int(round(w.sum())) if design.kind is WeightKind.FREQUENCY else len(picked)
-    return moments_from_rows(rows[picked], names, weights=w, n_obs=n_obs)
+    if design.kind is WeightKind.FREQUENCY:
+        n_obs = int(round(w.sum()))
+    else:
+        n_obs = len(picked)
+        if gaps:
+            w = w * (len(w) / w.sum())
+    return moments_from_rows(rows[picked], names, weights=w, n_obs=n_obs, full_information=gaps,
+                             weight_kind=design.kind)
 
 
 def sampling_units(design) -> list[list[np.ndarray]]:
@@ -194,8 +205,8 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     vech(d_i d_i') - vech(S) for ds, d_i its deviation from the means (Hampel et al. 1986).
     Under a sampling design the moments are weighted, each row's influence is multiplied by its
     weight (rescaled to mean one) and the rows of a cluster are summed: one value per cluster.
-    Rows with gaps (``rows`` holding NaN, no design): the full-information estimate's influence
-    (:func:`full_information_influence`).
+    Rows with gaps (``rows`` holding NaN): the full-information estimate's influence
+    (:func:`full_information_influence`), under a design weighted and summed within clusters as above.
     Entries are affine in theta; standardized values follow by the chain rule, their
     derivatives taken by central differences of the closed-form standardization."""
     from cfa_tool.assessment.standardized import standardize_entries
@@ -203,14 +214,17 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
 
     w = design.weights if design is not None else None
     gaps = bool(np.isnan(rows).any())
-    if gaps and design is not None:
-        raise ValueError("influence values of weighted rows with gaps are not built")
     options = FitOptions(diagnostics=False, missing=MissingData.FULL_INFORMATION if gaps else None)
-    est = estimate(spec, [(None, moments_from_rows(rows, names, weights=w, full_information=gaps))], options,
-                   start=theta)
+    kind = design.kind if design is not None else WeightKind.SAMPLING
+    est = estimate(spec, [(None, moments_from_rows(rows, names, weights=w, full_information=gaps, weight_kind=kind))],
+                   options, start=theta)
     model, table, theta = est.model, est.table, est.theta
     if gaps:
         influence_theta = full_information_influence(est.likelihood, theta)
+        if design is not None:  # weighted scores (weights rescaled to mean one), summed within clusters
+            influence_theta = influence_theta * (w * len(w) / w.sum())[:, None]
+            influence_theta = np.vstack([influence_theta[rows_of].sum(axis=0) for clusters in sampling_units(design)
+                                         for rows_of in clusters])
     else:
         influence_theta = _complete_row_influence(est, rows, w, design)
     codes, erows, ecols = table.entry_arrays()
@@ -317,7 +331,8 @@ def bollen_stine_rows(rows: np.ndarray, sigma: np.ndarray, weights: np.ndarray |
 def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int = 1000, seed: int = 1,
                   bollen_stine: bool | None = None, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
                   progress=None, design=None) -> BootstrapResult:
-    """Bootstrap a converged single-group fit of complete ``rows`` (columns in the model's order); ``design``
+    """Bootstrap a converged single-group fit of ``rows`` (columns in the model's order; with gaps for a
+    full-information fit, each resample then refitted so); ``design``
     the rows' data.sample_design.RowDesign, if any (clusters resampled, weights kept).  ``bollen_stine``: the
     Bollen-Stine p-value (None: where it applies, that is for continuous items).  A fit of ordinal items is
     bootstrapped by refitting each resample with its own thresholds and polychoric correlations (``rows`` then
@@ -337,9 +352,6 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     gaps = result.method.missing is MissingData.FULL_INFORMATION
     not_computed = None
     if gaps:
-        if design is not None:
-            raise OptionError("the bootstrap of a full-information fit under a sampling design is not built yet; fit "
-                              "the complete rows (--incomplete-rows listwise) or leave out the design")
         if bollen_stine is True:
             raise OptionError(f"{BOLLEN_STINE_WITH_GAPS}; leave it out, or bootstrap the complete rows "
                               f"(--incomplete-rows listwise)")
@@ -470,14 +482,15 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
                                      loaded)
         return bootstrap_fit(result, spec, numeric_columns(frame, result.observed, source), replications, seed,
                              bollen_stine, False, workers, scheduler, progress)
-    handling, missing_notes = refit_missing_handling(frame, spec.observed_names, missing, "bootstrap", design)
-    notes = missing_notes + list(notes)
-    options = FitOptions(missing=handling)
     if design is not None:
         frame, design_notes = check_design(frame, design, spec.observed_names, None, source)
         notes = list(notes) + design_notes
+    handling, missing_notes = refit_missing_handling(frame, spec.observed_names, missing)
+    notes = missing_notes + list(notes)
+    options = FitOptions(missing=handling)
+    if design is not None:
         options = design_test(options, design)
-        [(_, moments)], _ = moments_for(spec, frame, source, design=design)
+        [(_, moments)], _ = moments_for(spec, frame, source, missing=handling, design=design)
     else:
         moments = sample_moments(frame, spec.observed_names, source, missing=handling)
     with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails

@@ -322,7 +322,7 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
             result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
         return fit_cutoffs(spec, with_odd_values(result, loaded), replications, seed, workers, scheduler, progress)
-    handling, missing_notes = refit_missing_handling(frame, spec.observed_names, missing, "cutoffs")
+    handling, missing_notes = refit_missing_handling(frame, spec.observed_names, missing)
     moments = sample_moments(frame, spec.observed_names, source, missing=handling)
     with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
         result = converged(fit_moments(spec, moments, FitOptions(missing=handling)))

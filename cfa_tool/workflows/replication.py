@@ -103,7 +103,7 @@ def discrepancy(S: np.ndarray, sigma: np.ndarray) -> float:
 def _moments(spec: Spec, frame: pd.DataFrame, source: str, missing=None) -> SampleMoments:
     """The sample's moments, rows with gaps handled as fit handles them (``missing`` as given to the command)."""
     check_columns(spec, [str(c) for c in frame.columns], source)
-    handling, _ = refit_missing_handling(frame, spec.observed_names, missing, "replicate")
+    handling, _ = refit_missing_handling(frame, spec.observed_names, missing)
     return sample_moments(frame, spec.observed_names, source, missing=handling)
 
 
@@ -238,7 +238,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     check_columns(spec, [str(c) for c in frame.columns], source)
     handling = MissingData.LISTWISE
     if not ordinal_items:
-        handling, _ = refit_missing_handling(frame, spec.observed_names, missing, "replicate")
+        handling, _ = refit_missing_handling(frame, spec.observed_names, missing)
     if handling is MissingData.FULL_INFORMATION:
         complete = frame.dropna(subset=list(spec.observed_names), how="all")
         kind = "rows with answers"

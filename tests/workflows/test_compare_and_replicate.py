@@ -212,20 +212,6 @@ def test_commands_that_refit_keep_rows_with_gaps_as_fit_does(hs_data, command):
     assert fitted.n_obs in (271, 135, 136)
 
 
-def test_a_bootstrap_under_a_design_still_refits_complete_rows_only(hs_data):
-    data = hs_data.copy()
-    data.loc[data.index[:30], "x5"] = np.nan
-    data["school_id"] = np.arange(len(data)) // 10
-    with pytest.raises(OptionError, match="30 of 301 rows miss some answers.*under a sampling design.*complete rows only"):
-        cfa_tool.bootstrap(THREE_FACTORS, data, replications=20, bca=False, cluster="school_id")
-    with pytest.raises(OptionError, match="under a sampling design .*full-information ML cannot apply"):
-        cfa_tool.bootstrap(THREE_FACTORS, data, replications=20, bca=False, cluster="school_id",
-                           missing="full-information")
-    kept = cfa_tool.bootstrap(THREE_FACTORS, data, replications=20, bca=False, bollen_stine=False,
-                              cluster="school_id", missing="listwise")
-    assert kept.fit.n_obs == 271
-
-
 def test_a_few_incomplete_rows_are_left_out_and_said(hs_data):
     from cfa_tool.reporting.workflow_tables import bootstrap_report
 

@@ -207,6 +207,65 @@ def test_split_half_with_gaps_splits_every_row_with_an_answer(gappy):
     assert second.calibration_result.n_obs == first.loose.n_obs
 
 
+def clustered(clusters: int, size: int, seed: int) -> pd.DataFrame:
+    """Rows with gaps in clusters of ``size`` rows sharing a random shift of every item (seeded)."""
+    data = with_gaps(clusters * size, seed).iloc[: clusters * size].copy()
+    data["school"] = np.repeat(np.arange(clusters), size)[: len(data)]
+    shift = np.random.default_rng(seed + 2).normal(0.0, 0.5, clusters)
+    data[list(NAMES)] = data[list(NAMES)].add(shift[data["school"].to_numpy()], axis=0)
+    return data
+
+
+def test_a_weighted_refit_of_rows_with_gaps_is_the_fit_of_those_rows_with_their_weights(gappy):
+    from cfa_tool.data.sample_design import RowDesign
+    from cfa_tool.method import WeightKind
+    from cfa_tool.workflows.bootstrap import _resample
+
+    full = cfa_tool.fit(TWO_FACTORS, gappy)
+    design = RowDesign(np.ones(len(gappy)) * 2.0, WeightKind.FREQUENCY)  # every record stands for two rows
+    sample = _resample(gappy.to_numpy(), NAMES, 5, design, gaps=True)
+    [refit] = replicate_fits(parse_model(TWO_FACTORS), [sample], full.theta, full_information=True)
+    records = pd.DataFrame(sample.rows, columns=list(NAMES)).assign(count=sample.design.weights)
+    direct = cfa_tool.fit(TWO_FACTORS, records, weights="count", weight_kind="frequency")
+    assert sample.n_obs == direct.n_obs == 2 * len(gappy)
+    np.testing.assert_allclose(refit.values, [r.estimate for r in direct.estimates], atol=1e-6)
+
+
+def test_cluster_influence_of_rows_with_gaps_matches_the_delete_one_cluster_jackknife():
+    """Under clusters each cluster's influence is its rows' weighted influences summed; to first order it is
+    the rows left (N - 5) times the cluster's delete-one-cluster jackknife difference (Efron & Tibshirani 1993,
+    ch. 11), and the BCa accelerations agree (tolerances set here)."""
+    from cfa_tool.data.sample_design import design_columns, row_design
+    from cfa_tool.workflows.bootstrap import acceleration, influence_values
+
+    data = clustered(60, 5, 12)
+    rows = data[list(NAMES)].to_numpy()
+    design = row_design(data, design_columns(cluster="school"), np.ones(len(data), dtype=bool))
+    spec = parse_model(TWO_FACTORS)
+    full = cfa_tool.fit(TWO_FACTORS, data, cluster="school")
+    assert full.method.missing is MissingData.FULL_INFORMATION
+    influence, _ = influence_values(spec, rows, NAMES, full.theta, design)
+    assert influence.shape[0] == 60
+    schools = data["school"].to_numpy()
+    jack = np.array([replicate_fits(spec, [moments_from_rows(rows[schools != c], NAMES, full_information=True)],
+                                    full.theta, fit_indices_wanted=False, full_information=True)[0].values
+                     for c in range(60)])
+    varying = np.ptp(jack, axis=0) > 0
+    d = jack.mean(axis=0) - jack
+    for e in np.flatnonzero(varying):
+        assert np.corrcoef(influence[:, e], d[:, e])[0, 1] > 0.98
+        assert np.std(influence[:, e]) / (len(rows) - 5) == pytest.approx(np.std(d[:, e]), rel=0.05)
+    exact = np.sum(d[:, varying] ** 3, axis=0) / (6 * np.sum(d[:, varying] ** 2, axis=0) ** 1.5)
+    np.testing.assert_allclose(acceleration(influence)[varying], exact, atol=0.01)
+
+
+def test_a_cluster_bootstrap_of_rows_with_gaps_refits_every_row():
+    data = clustered(40, 5, 4)
+    boot = cfa_tool.bootstrap(TWO_FACTORS, data, replications=20, seed=3, cluster="school")
+    assert boot.fit.method.missing is MissingData.FULL_INFORMATION and boot.fit.n_obs == len(data)
+    assert boot.fit.design is not None and boot.converged == 20 and boot.bollen_stine_not_computed
+
+
 @pytest.mark.parametrize("command", ["bootstrap", "cutoffs", "replicate"])
 def test_the_help_of_the_refitting_commands_says_how_rows_with_gaps_are_refitted(command, capsys):
     from cfa_tool.cli import main
