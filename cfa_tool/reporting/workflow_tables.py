@@ -335,6 +335,11 @@ def replication_report(replications) -> Report:
                      "one of the least-squares fit; the tight check compares the validation sample's polychoric "
                      "correlations with those the calibration estimates imply, and the cross-validation index is the "
                      "least-squares discrepancy with the validation sample's weights.")
+    if any(r.method.missing is MissingData.FULL_INFORMATION for rep in reps for r in (rep.calibration_result, rep.loose)):
+        notes.append("Rows with gaps: a sample whose rows have gaps is fitted by full-information ML, as fit fits it; "
+                     "when the validation sample has gaps, the tight check and the cross-validation index are its "
+                     "full-information discrepancy from the calibration covariance matrix, its means at their "
+                     "maximum-likelihood values given that matrix.")
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
     return Report(ResultKind.REPLICATE, title, _notice(problems), (), tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE))

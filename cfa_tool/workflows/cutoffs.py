@@ -192,7 +192,9 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
     else:
         full_information = result.method.missing is MissingData.FULL_INFORMATION
         if full_information != (patterns is not None):
-            raise ValueError("a full-information fit's cutoffs need the data's missing-data patterns, and only it")
+            raise OptionError("the cutoffs of a full-information fit carry the data's missing-data patterns over, so "
+                              "they need them (patterns: the rows' answered items), and only such a fit takes them; "
+                              "cutoffs(model, data) finds them")
         misspecify = partial(misspecified_covariance, spec, result)
         sample = _sampler(spec, result, replications, seeds, workers, scheduler, progress, patterns)
         observed = {"cfi": result.fit.cfi, "rmsea": result.fit.rmsea, "srmr": result.fit.srmr}

@@ -135,6 +135,10 @@ def test_cutoffs_carry_the_missing_data_pattern_over(gappy):
     assert cut.converged_correct >= 18
     assert any("The missing-data pattern was carried over" in line for line in cutoffs_report(cut).lines)
     assert cut.to_dict()["result"]["missing_data_patterns_from_rows"] == len(gappy)
+    from cfa_tool.workflows.cutoffs import fit_cutoffs
+
+    with pytest.raises(OptionError, match="carry the data's missing-data patterns over"):
+        fit_cutoffs(parse_model(TWO_FACTORS), cut.fit, replications=20)
     # the simulated samples hold the data's gaps: their share of missing answers is the data's
     patterns = gappy.notna().to_numpy()
     spec = parse_model(TWO_FACTORS)
@@ -198,6 +202,10 @@ def test_replicate_with_gaps_fits_each_sample_as_fit_does_and_its_tight_check_is
     assert best.fun <= _minus_two_log_likelihood(rows, m, S) + 1e-6
     assert rep.tight_chi_square == pytest.approx(fixed.fun - best.fun, rel=1e-4)
     assert rep.tight_df == 21 and rep.cvi == pytest.approx(rep.tight_chi_square / rep.loose.n_obs)
+    from cfa_tool.reporting.workflow_tables import replication_report
+
+    assert any(note.startswith("Rows with gaps: a sample whose rows have gaps is fitted by full-information ML")
+               for note in replication_report(rep).notes)
 
 
 def test_split_half_with_gaps_splits_every_row_with_an_answer(gappy):
