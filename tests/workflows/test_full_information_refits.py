@@ -55,12 +55,27 @@ def test_a_refit_of_one_resample_is_fit_on_that_resample(gappy):
         assert ours == pytest.approx(theirs, abs=1e-6)
 
 
+def agrees_with_the_jackknife(influence: np.ndarray, jack: np.ndarray, rows_left: int, correlation: float,
+                              atol: float) -> None:
+    """Influence values against leave-one-out estimates ``jack``: each column's differences from the jackknife
+    mean are the influence over the rows left, to first order, and the BCa accelerations agree."""
+    from cfa_tool.workflows.bootstrap import acceleration
+
+    varying = np.ptp(jack, axis=0) > 0
+    d = jack.mean(axis=0) - jack
+    for e in np.flatnonzero(varying):
+        assert np.corrcoef(influence[:, e], d[:, e])[0, 1] > correlation
+        assert np.std(influence[:, e]) / rows_left == pytest.approx(np.std(d[:, e]), rel=0.05)
+    exact = np.sum(d[:, varying] ** 3, axis=0) / (6 * np.sum(d[:, varying] ** 2, axis=0) ** 1.5)
+    np.testing.assert_allclose(acceleration(influence)[varying], exact, atol=atol)
+
+
 def test_influence_of_rows_with_gaps_matches_the_jackknife():
     """Each row's analytic influence on the full-information estimate is, to first order, (N - 1) times its
     leave-one-out difference, computed here by brute force; so are the BCa accelerations (Efron & Tibshirani
     1993, ch. 11 and 14).  The second-order gap shrinks with N (at N = 150 up to 10%, at 300 within 3.5%, as
     for complete rows), so N = 300 and 5% (a tolerance set here)."""
-    from cfa_tool.workflows.bootstrap import acceleration, influence_values
+    from cfa_tool.workflows.bootstrap import influence_values
 
     data = with_gaps(300, 8, share=0.15)
     rows = data.to_numpy()
@@ -70,13 +85,7 @@ def test_influence_of_rows_with_gaps_matches_the_jackknife():
     jack = np.array([replicate_fits(spec, [moments_from_rows(np.delete(rows, i, axis=0), NAMES, full_information=True)],
                                     full.theta, fit_indices_wanted=False, full_information=True)[0].values
                      for i in range(len(rows))])
-    varying = np.ptp(jack, axis=0) > 0
-    d = jack.mean(axis=0) - jack
-    for e in np.flatnonzero(varying):
-        assert np.corrcoef(influence[:, e], d[:, e])[0, 1] > 0.99
-        assert np.std(influence[:, e]) / (len(rows) - 1) == pytest.approx(np.std(d[:, e]), rel=0.05)
-    exact = np.sum(d[:, varying] ** 3, axis=0) / (6 * np.sum(d[:, varying] ** 2, axis=0) ** 1.5)
-    np.testing.assert_allclose(acceleration(influence)[varying], exact, atol=5e-3)
+    agrees_with_the_jackknife(influence, jack, len(rows) - 1, correlation=0.99, atol=5e-3)
 
 
 def test_bootstrap_spread_matches_the_observed_information_standard_errors():
@@ -244,7 +253,7 @@ def test_cluster_influence_of_rows_with_gaps_matches_the_delete_one_cluster_jack
     the rows left (N - 5) times the cluster's delete-one-cluster jackknife difference (Efron & Tibshirani 1993,
     ch. 11), and the BCa accelerations agree (tolerances set here)."""
     from cfa_tool.data.sample_design import design_columns, row_design
-    from cfa_tool.workflows.bootstrap import acceleration, influence_values
+    from cfa_tool.workflows.bootstrap import influence_values
 
     data = clustered(60, 5, 12)
     rows = data[list(NAMES)].to_numpy()
@@ -258,13 +267,7 @@ def test_cluster_influence_of_rows_with_gaps_matches_the_delete_one_cluster_jack
     jack = np.array([replicate_fits(spec, [moments_from_rows(rows[schools != c], NAMES, full_information=True)],
                                     full.theta, fit_indices_wanted=False, full_information=True)[0].values
                      for c in range(60)])
-    varying = np.ptp(jack, axis=0) > 0
-    d = jack.mean(axis=0) - jack
-    for e in np.flatnonzero(varying):
-        assert np.corrcoef(influence[:, e], d[:, e])[0, 1] > 0.98
-        assert np.std(influence[:, e]) / (len(rows) - 5) == pytest.approx(np.std(d[:, e]), rel=0.05)
-    exact = np.sum(d[:, varying] ** 3, axis=0) / (6 * np.sum(d[:, varying] ** 2, axis=0) ** 1.5)
-    np.testing.assert_allclose(acceleration(influence)[varying], exact, atol=0.01)
+    agrees_with_the_jackknife(influence, jack, len(rows) - 5, correlation=0.98, atol=0.01)
 
 
 def test_a_cluster_bootstrap_of_rows_with_gaps_refits_every_row():
