@@ -111,8 +111,7 @@ def _replicate(tasks: list) -> list:
     out = []
     for _, sigma, _, n, seed, _, _, _ in tasks:
         rng = np.random.default_rng(seed)
-        rows = simulate_rows(sigma, n, rng, mean)
-        rows[~patterns[rng.integers(0, len(patterns), n)]] = np.nan
+        rows = carried_gaps(simulate_rows(sigma, n, rng, mean), patterns, rng)
         try:
             sample = moments_from_rows(rows, names, full_information=True)
         except (DataError, EstimationError):  # an item or a pair of items without enough answers
@@ -120,6 +119,14 @@ def _replicate(tasks: list) -> list:
             continue
         [fit] = replicate_fits(spec, [sample], start, full_information=True)
         out.append((fit.converged, fit.cfi, fit.rmsea, fit.srmr))
+    return out
+
+
+def carried_gaps(rows: np.ndarray, patterns: np.ndarray, rng: np.random.Generator) -> np.ndarray:
+    """``rows`` (complete, simulated) with the gaps of data rows drawn at random with replacement: row i takes
+    the missing-data pattern of a random row of ``patterns`` (rows x items, True where answered)."""
+    out = rows.copy()
+    out[~patterns[rng.integers(0, len(patterns), len(rows))]] = np.nan
     return out
 
 

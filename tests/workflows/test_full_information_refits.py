@@ -137,7 +137,6 @@ def test_resamples_whose_saturated_model_cannot_be_estimated_are_counted_apart(g
 
 def test_cutoffs_carry_the_missing_data_pattern_over(gappy):
     from cfa_tool.reporting.workflow_tables import cutoffs_report
-    from cfa_tool.workflows.cutoffs import _replicate
 
     cut = cfa_tool.cutoffs(TWO_FACTORS, gappy, replications=20, seed=2, workers=1)
     assert cut.fit.method.missing is MissingData.FULL_INFORMATION and cut.pattern_rows == len(gappy)
@@ -148,16 +147,16 @@ def test_cutoffs_carry_the_missing_data_pattern_over(gappy):
 
     with pytest.raises(OptionError, match="carry the data's missing-data patterns over"):
         fit_cutoffs(parse_model(TWO_FACTORS), cut.fit, replications=20)
-    # the simulated samples hold the data's gaps: their share of missing answers is the data's
+    # the simulated samples hold the data's gaps: every row one of the data's patterns, in their proportions
+    from cfa_tool.workflows.cutoffs import carried_gaps
+
     patterns = gappy.notna().to_numpy()
-    spec = parse_model(TWO_FACTORS)
-    sigma, mean = cut.fit.implied_covariance, cut.fit.groups[0].implied_mean
-    [draw] = _replicate([(spec, sigma, NAMES, 4000, 9, cut.fit.theta, patterns, mean)])
-    assert draw[0] and 0 < draw[1] <= 1
-    rng = np.random.default_rng(9)
-    rng.standard_normal((4000, 6))
-    kept = patterns[rng.integers(0, len(patterns), 4000)]
-    assert kept.mean() == pytest.approx(patterns.mean(), abs=0.01)
+    simulated = carried_gaps(np.zeros((20000, 6)), patterns, np.random.default_rng(9))
+    answered = ~np.isnan(simulated)
+    assert {tuple(row) for row in answered} <= {tuple(row) for row in patterns}
+    np.testing.assert_allclose(answered.mean(axis=0), patterns.mean(axis=0), atol=0.01)
+    complete = answered.all(axis=1).mean()
+    assert complete == pytest.approx(patterns.all(axis=1).mean(), abs=0.01)
 
 
 def test_fixed_covariance_discrepancy_without_gaps_is_the_normal_theory_one(gappy):
