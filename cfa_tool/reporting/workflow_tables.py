@@ -396,8 +396,11 @@ def bootstrap_report(boot) -> Report:
         lines.append(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
                      f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_value(result.fit.p_value)}).")
     elif boot.bollen_stine_not_computed:
+        robust = result.robust
+        test = (f"{robust.test.label} statistic (p {p_value(robust.p_value_scaled)})" if robust is not None
+                else f"chi-square (p {p_value(result.fit.p_value)})")
         lines.append(f"No Bollen-Stine p-value: {boot.bollen_stine_not_computed}; the test of fit remains the fit's "
-                     f"chi-square (p {p_value(result.fit.p_value)}).")
+                     f"{test}.")
     def shown(value: float, scale: str) -> str:  # a standardized value within [-1, 1] without its leading zero
         return unit(value) if scale == "standardized" and not missing(value) and abs(value) <= 1 else num(value)
 

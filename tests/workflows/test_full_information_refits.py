@@ -275,6 +275,11 @@ def test_a_cluster_bootstrap_of_rows_with_gaps_refits_every_row():
     boot = cfa_tool.bootstrap(TWO_FACTORS, data, replications=20, seed=3, cluster="school")
     assert boot.fit.method.missing is MissingData.FULL_INFORMATION and boot.fit.n_obs == len(data)
     assert boot.fit.design is not None and boot.converged == 20 and boot.bollen_stine_not_computed
+    from cfa_tool.reporting.workflow_tables import bootstrap_report
+
+    # the test that remains is the one the fit reports under the design: the scaled one, with its p-value
+    [line] = [x for x in bootstrap_report(boot).lines if x.startswith("No Bollen-Stine p-value")]
+    assert line.endswith(f"the fit's Yuan-Bentler statistic (p .{round(1000 * boot.fit.robust.p_value_scaled):03d}).")
 
 
 @pytest.mark.parametrize("command", ["bootstrap", "cutoffs", "replicate"])
