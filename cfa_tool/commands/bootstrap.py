@@ -15,7 +15,7 @@ def add_parser(sub) -> None:
                                 "number of resamples")
     O.add_ordinal_options(p)
     O.add_design_options(p)
-    O.add_incomplete_rows_option(p, O.COMPLETE_ROWS_ONLY)
+    O.add_incomplete_rows_option(p, O.REFITS_AS_THE_FIT)
 
 
 def run(args: argparse.Namespace) -> int:

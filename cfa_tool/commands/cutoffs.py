@@ -14,7 +14,7 @@ def add_parser(sub) -> None:
                                 "items: simulated as ordinal answers, cutoffs of the adjusted indices)", 200,
                                 "samples per population")
     O.add_ordinal_options(p)
-    O.add_incomplete_rows_option(p, O.COMPLETE_ROWS_ONLY)
+    O.add_incomplete_rows_option(p, O.REFITS_AS_THE_FIT)
     O.refuse_design_options(p, "cutoffs are simulated from samples of independent, equally weighted rows, and a "
                                "sampling design (weights, clusters, strata) cannot be simulated from the data alone; "
                                "run cutoffs without it and compare with the fit's design-based statistics with care")

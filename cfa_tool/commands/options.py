@@ -128,8 +128,7 @@ def add_run_options(p: argparse.ArgumentParser) -> None:
 
 
 #: where the refits of a command use the complete rows only
-COMPLETE_ROWS_ONLY = ("; for continuous items this command refits the complete rows only, so 'listwise' must be "
-                      "given when that leaves out more than 5%% of the rows")
+REFITS_AS_THE_FIT = "; every refit treats the rows as the fit does"
 
 
 def add_incomplete_rows_option(p: argparse.ArgumentParser, where: str = "") -> None:

@@ -17,7 +17,7 @@ def add_parser(sub) -> None:
     rep.add_argument("--data", metavar="FILE", help="one data file to split at random into two halves")
     rep.add_argument("--seed", type=int, default=1, help="seed of the random split (default 1)")
     O.add_ordinal_options(rep)
-    O.add_incomplete_rows_option(rep, O.COMPLETE_ROWS_ONLY)
+    O.add_incomplete_rows_option(rep, O.REFITS_AS_THE_FIT)
     O.refuse_design_options(rep, "replicate's tight test and cross-validation index compare normal-theory "
                                  "discrepancies of independent, equally weighted rows (and the random halves would "
                                  "split clusters), so they would mislead under a sampling design; fit each sample "

@@ -217,6 +217,14 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     return SampleMoments(tuple(names), cov, means, n, len(frame), len(frame) - n, file_source, group, data, numbers)
 
 
+def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,
+                      weights: np.ndarray | None = None) -> SampleMoments:
+    """The saturated (EM) moments of rows with gaps, every one answering some item (a resample or a simulated
+    sample with the data's gaps), keeping the rows for the casewise likelihood; a :class:`DataError` where they
+    cannot be estimated (an item with fewer than two answers, a pair that no row answers)."""
+    return _incomplete_moments(values, tuple(names), source, source, None, len(values), weights)
+
+
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int,
                         weights: np.ndarray | None = None) -> SampleMoments:
     from cfa_tool.data.em import SingularCovariance, em_saturated

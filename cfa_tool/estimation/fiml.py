@@ -251,6 +251,22 @@ def _row_blocks(rows: np.ndarray, weights: np.ndarray):
     return observed, together, blocks
 
 
+def fixed_covariance_discrepancy(data: PatternData, sigma: np.ndarray, saturated: tuple[np.ndarray, np.ndarray]) -> float:
+    """The full-information discrepancy of rows with gaps from a fixed covariance matrix, the means at their ML
+    estimate given it: with A_k = Sigma_oo^-1 embedded (zeros elsewhere) the score in mu vanishes at
+        mu = (sum_k n_k A_k)^-1 sum_k n_k A_k m_k
+    (m_k the pattern's means, zeros where missing; the generalised least-squares mean, Little & Rubin 2002,
+    ch. 11), and F = f(mu, Sigma) - f(saturated) as in the module docstring.  Without gaps it is the normal-theory
+    discrepancy log|Sigma| + tr(S Sigma^-1) - log|S| - p (Joreskog 1969), the means at the sample means."""
+    inv = embedded_inverse(sigma, data.observed)
+    if inv is None:
+        return np.inf
+    A, _ = inv
+    w = data.counts / data.n_obs
+    mu = np.linalg.solve(np.tensordot(w, A, axes=1), np.einsum("k,kij,kj->i", w, A, data.means))
+    return pattern_objective(data, mu, sigma) - pattern_objective(data, *saturated)
+
+
 def fiml_log_likelihood(likelihood: MissingDataLikelihood, theta: np.ndarray) -> float:
     """log L = -1/2 sum_k n_k (p_k log 2 pi + log|Sigma_oo| + tr(Sigma_oo^-1 T_k)), over groups."""
     total = 0.0

@@ -23,7 +23,7 @@ from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.data.groups import pooled
-from cfa_tool.data.moments import SampleMoments
+from cfa_tool.data.moments import SampleMoments, moments_with_gaps
 from cfa_tool.errors import CfaError, OptionError
 from cfa_tool.estimation.fiml import MissingDataLikelihood, fiml_baseline, fiml_log_likelihood
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
@@ -34,7 +34,7 @@ from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
 from cfa_tool.inference.standard_errors import observed_information, parameter_covariance, wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import Spec
-from cfa_tool.method import Estimator, FitMethod, FitTest, Information, MissingData
+from cfa_tool.method import Estimator, FitMethod, FitTest, Information, MissingData, WeightKind
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
@@ -401,15 +401,21 @@ def replicate_fit(spec: Spec, moments: SampleMoments, start: np.ndarray | None =
 
 
 def replicate_fits(spec: Spec, samples: list[SampleMoments], start: np.ndarray | None, standard_errors: bool = False,
-                   fit_indices_wanted: bool = True, max_iterations: int = 200) -> list[ReplicateFit]:
+                   fit_indices_wanted: bool = True, max_iterations: int = 200,
+                   full_information: bool = False) -> list[ReplicateFit]:
     """:func:`replicate_fit` of each sample from ``start``, the searches of a model that
     :mod:`cfa_tool.estimation.stacked` covers run together in stacked arrays.  A replication the stacked
     search does not bring to convergence is refitted alone by :func:`replicate_fit` (restarts, fallbacks
-    and all), so that it converges, or is counted as not converged, exactly as a single fit would."""
-    options = FitOptions(max_iterations=max_iterations, diagnostics=False)
-    table, model = model_structure(spec, None, False)
+    and all), so that it converges, or is counted as not converged, exactly as a single fit would.
+    ``full_information``: samples of rows with gaps (:func:`moments_from_rows` with ``full_information``),
+    each fitted by full-information ML as ``fit`` fits them (one at a time: the stacked search has no
+    casewise likelihood)."""
+    options = FitOptions(max_iterations=max_iterations, diagnostics=False,
+                         missing=MissingData.FULL_INFORMATION if full_information else None)
+    table, model = model_structure(spec, None, full_information)
     with blas_threads_for(len(spec.observed_names)):
-        if not samples or start is None or len(start) != table.n_free or not stackable(model):
+        if (not samples or start is None or len(start) != table.n_free or not stackable(model)
+                or full_information):
             return [_replicate_fit(spec, m, options, start, standard_errors, fit_indices_wanted) for m in samples]
         groups = [ordered_moments(m, table.observed) for m in samples]
         found = fit_stacked(model, np.array([gm.covariance for gm in groups]), start, max_iterations)
@@ -423,27 +429,39 @@ def replicate_fits(spec: Spec, samples: list[SampleMoments], start: np.ndarray |
 
 def _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_wanted) -> ReplicateFit:
     nan = float("nan")
+    full_information = options.missing is MissingData.FULL_INFORMATION
     try:
         est = estimate(spec, [(None, moments)], options, start=start)
     except SingularMoments:  # a resample with too few distinct rows: counted as not converged
-        table, model = model_structure(spec, None, False)
+        table, model = model_structure(spec, None, full_information)
         theta = np.full(table.n_free, nan) if start is None else np.asarray(start, dtype=float)
         values = model.entry_values(theta)
         return ReplicateFit(False, theta, values, np.full_like(values, np.nan), None, nan, nan, nan, nan)
     if not est.converged:
         values = est.model.entry_values(est.theta)
         return ReplicateFit(False, est.theta, values, np.full_like(values, np.nan), None, nan, nan, nan, nan)
-    information = est.likelihood.evaluate(est.theta).information[None] if standard_errors else None
+    if full_information:  # standard errors from the observed information, as fit's (Kenward & Molenberghs 1998)
+        information = est.likelihood.observed_hessian(est.theta) if standard_errors else None
+        if standard_errors and information is None:
+            information = observed_information(est.likelihood.gradient, est.theta, central=False)
+        information = information[None] if standard_errors else None
+        baseline = fiml_baseline(est.likelihood) + (fiml_log_likelihood(est.likelihood, est.theta),)
+    else:
+        information = est.likelihood.evaluate(est.theta).information[None] if standard_errors else None
+        baseline = None
     return _replicate_results(est.table, est.model, est.likelihood.groups, est.theta[None], np.array([est.value]),
-                              information, standard_errors, fit_indices_wanted)[0]
+                              information, standard_errors, fit_indices_wanted, baseline)[0]
 
 
 def _replicate_results(table: ParameterTable, model: StructuredModel, groups: list[GroupMoments], theta: np.ndarray,
                        value: np.ndarray, information: np.ndarray | None, standard_errors: bool,
-                       fit_indices_wanted: bool) -> list[ReplicateFit]:
+                       fit_indices_wanted: bool, full_information: tuple[float, int, float] | None = None
+                       ) -> list[ReplicateFit]:
     """What each replication keeps of converged single-group fits to ``groups`` with discrepancies ``value``
-    at ``theta`` (R, q) (``information`` (R, q, q) the expected information there, wanted for standard
-    errors): the chi-square always, the other indices when wanted."""
+    at ``theta`` (R, q) (``information`` (R, q, q) the information there, wanted for standard
+    errors): the chi-square always, the other indices when wanted.  ``full_information``: the one fit is a
+    full-information one, with this (baseline chi-square, its df, log-likelihood); its ``groups`` hold the
+    saturated (EM) moments, and its indices are computed as ``fit`` computes them."""
     nan = float("nan")
     values = model.offset + theta @ model.J.T
     mats = model.matrices(theta)
@@ -463,8 +481,12 @@ def _replicate_results(table: ParameterTable, model: StructuredModel, groups: li
         chi, cfi, rmsea, srmr_ = gm.n_obs * float(value[r]), nan, nan, nan
         if fit_indices_wanted:
             S, sigma = gm.covariance, sigmas[r]
-            base_chi, base_df, loglik = normal_theory_parts([(S, sigma, gm.n_obs, None)])
-            f = fit_indices(chi_square=chi, df=p * (p + 1) // 2 - table.n_free, baseline_chi_square=base_chi,
+            if full_information is None:
+                base_chi, base_df, loglik = normal_theory_parts([(S, sigma, gm.n_obs, None)])
+            else:
+                base_chi, base_df, loglik = full_information
+            statistics = p * (p + 1) // 2 + (p if table.mean_structure else 0)
+            f = fit_indices(chi_square=chi, df=statistics - table.n_free, baseline_chi_square=base_chi,
                             baseline_df=base_df, n_obs=gm.n_obs, n_free=table.n_free, srmr=srmr_value(S, sigma),
                             log_likelihood=loglik)
             chi, cfi, rmsea, srmr_ = f.chi_square, f.cfi, f.rmsea, f.srmr
@@ -473,9 +495,20 @@ def _replicate_results(table: ParameterTable, model: StructuredModel, groups: li
 
 
 def moments_from_rows(rows: np.ndarray, names: tuple[str, ...], source: str = "<replication>",
-                      weights: np.ndarray | None = None, n_obs: int | None = None) -> SampleMoments:
+                      weights: np.ndarray | None = None, n_obs: int | None = None,
+                      full_information: bool = False, weight_kind: WeightKind = WeightKind.SAMPLING) -> SampleMoments:
     """Moments of complete ``rows``; with ``weights`` the weighted means and covariance (divisor the sum of
-    the weights) and ``n_obs`` the N of the test statistic (default the number of rows)."""
+    the weights) and ``n_obs`` the N of the test statistic (default the number of rows).  With
+    ``full_information`` the rows may have gaps (each answering some item): their saturated moments by EM,
+    the rows kept for the casewise likelihood, which ``weights`` (of ``weight_kind``) weight, carried as the
+    rows' design (Asparouhov 2005); a DataError where the moments cannot be estimated."""
+    if full_information:
+        moments = moments_with_gaps(rows, names, source, weights)
+        if weights is None:
+            return moments
+        from cfa_tool.data.sample_design import RowDesign
+
+        return replace(moments, n_obs=moments.n_obs if n_obs is None else n_obs, design=RowDesign(weights, weight_kind))
     n = len(rows) if n_obs is None else n_obs
     if weights is None:
         mean = rows.mean(axis=0)

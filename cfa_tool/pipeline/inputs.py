@@ -23,7 +23,7 @@ from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summ
 from cfa_tool import options as opt
 from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.pipeline.continuous import LISTWISE_WARNING_SHARE, FitOptions, fit_moments
+from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import FitTest, MissingData, WeightKind, Weighting
@@ -538,23 +538,13 @@ def continuous_only(spec: Spec, command: str) -> Spec:
     return spec
 
 
-def refits_complete_rows(frame: pd.DataFrame, names: tuple[str, ...], missing, command: str) -> None:
-    """Commands whose refits use the complete rows only (full-information refits are not built for them): when
-    missing answers would leave out more than LISTWISE_WARNING_SHARE of the rows, that must be asked for
-    (``missing='listwise'``, --incomplete-rows listwise), as fit keeps every row by default; fewer are left out
-    and the report says how many."""
+def refit_missing_handling(frame: pd.DataFrame, names: tuple[str, ...], missing) -> tuple[MissingData, list[str]]:
+    """How a command that refits many samples of continuous items (bootstrap, cutoffs, replicate) treats rows
+    with gaps, with fit's note: as fit does, full-information ML when a model variable has gaps (or when asked),
+    the complete rows when ``missing='listwise'`` (--incomplete-rows listwise)."""
     missing = None if missing is None else MissingData.parse(missing, "the handling of rows with missing answers")
-    if missing is MissingData.FULL_INFORMATION:
-        raise OptionError(f"'{command}' refits the complete rows only, so full-information ML cannot apply here yet; "
-                          f"give --incomplete-rows listwise or leave the option out")
-    if missing is MissingData.LISTWISE:
-        return
-    gap = rows_with_gaps(frame, names)
-    if gap.sum() > LISTWISE_WARNING_SHARE * len(frame):
-        raise OptionError(f"{int(gap.sum())} of {len(frame)} rows miss some answers on model variables, and "
-                          f"'{command}' refits the complete rows only (fit keeps every row by full-information ML, "
-                          f"which is not available here yet); add --incomplete-rows listwise to use the "
-                          f"{int((~gap).sum())} complete rows")
+    options, notes = choose_missing_handling(FitOptions(missing=missing), frame, names, None)
+    return options.missing, notes
 
 
 def without_exploratory_blocks(spec: Spec, command: str, why: str) -> Spec:

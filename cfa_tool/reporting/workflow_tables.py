@@ -393,6 +393,11 @@ def replication_report(replications) -> Report:
                      "the least-squares fit; the tight check compares the validation sample's polychoric "
                      "correlations with those the calibration estimates imply, and the cross-validation index is the "
                      "least-squares discrepancy with the validation sample's weights.")
+    if any(r.method.missing is MissingData.FULL_INFORMATION for rep in reps for r in (rep.calibration_result, rep.loose)):
+        notes.append("Rows with gaps: a sample whose rows have gaps is fitted by full-information ML, as fit fits it; "
+                     "when the validation sample has gaps, the tight check and the cross-validation index are its "
+                     "full-information discrepancy from the calibration covariance matrix, its means at their "
+                     "maximum-likelihood values given that matrix.")
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
     return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), (), tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE))
@@ -409,9 +414,16 @@ ORDINAL_BOOTSTRAP = ("Ordinal items: each resample gets its own thresholds and p
 
 
 def _left_out(result) -> str:
-    """The rows with missing answers a command that refits complete rows left out ('' when none were)."""
+    """The rows with missing answers a command that refits complete rows left out ('' when none were), or, for
+    a full-information fit, that the rows with gaps are kept in every refit."""
     d = result.data
-    if not d.rows_dropped or result.method.ordinal:
+    if result.method.ordinal:
+        return ""
+    if result.method.missing is MissingData.FULL_INFORMATION:
+        return (" with their gaps, each refitted by full-information ML"
+                + (f"; {d.rows_dropped} of {d.rows_read} rows answered none of the items and were left out"
+                   if d.rows_dropped else ""))
+    if not d.rows_dropped:
         return ""
     return f" ({d.rows_dropped} of {d.rows_read} rows with missing answers left out: the refits use complete rows)"
 
@@ -420,10 +432,13 @@ def bootstrap_report(boot) -> Report:
     result = boot.fit
     ordinal = result.method.ordinal
     not_converged = boot.replications - boot.converged - boot.failed
+    why_failed = ("an item lost an answer category, or the correlations were not positive definite" if ordinal else
+                  "an item had fewer than two answers, or a pair of items none together, so the saturated model could "
+                  "not be estimated")
     lines = [f"{boot.replications} resamples of {result.n_obs} rows{_left_out(result)} (seed {boot.seed}); "
              f"{boot.converged} converged, "
-             f"{not_converged} did not" + (f" and {boot.failed} could not be analysed (an item lost an answer category, "
-                                           f"or the correlations were not positive definite)" if boot.failed else "")
+             f"{not_converged} did not" + (f" and {boot.failed} could not be analysed ({why_failed})" if boot.failed
+                                           else "")
              + "; those are left out of the intervals."]
     if ordinal:
         lines.append(ORDINAL_BOOTSTRAP.format(estimator=result.method.weighting.phrase))
@@ -438,6 +453,12 @@ def bootstrap_report(boot) -> Report:
     if boot.bollen_stine_p is not None:
         lines.append(f"Bollen-Stine bootstrap p-value of the chi-square test: {unit(boot.bollen_stine_p)} "
                      f"({boot.bollen_stine_converged} converged resamples; normal-theory p {p_value(result.fit.p_value)}).")
+    elif boot.bollen_stine_not_computed:
+        robust = result.robust
+        test = (f"{robust.test.label} statistic (p {p_value(robust.p_value_scaled)})" if robust is not None
+                else f"chi-square (p {p_value(result.fit.p_value)})")
+        lines.append(f"No Bollen-Stine p-value: {boot.bollen_stine_not_computed}; the test of fit remains the fit's "
+                     f"{test}.")
     def shown(value: float, scale: str) -> str:  # a standardized value within [-1, 1] without its leading zero
         return unit(value) if scale == "standardized" and not missing(value) and abs(value) <= 1 else num(value)
 
@@ -489,8 +510,14 @@ def cutoffs_report(cut) -> Report:
     table = _table("cutoffs", "Cutoffs", [("Index", "l"), ("Level", "r"), ("Cutoff", "r"), ("This model", "r"),
                                           ("Reading", "l")], rows,
                    values=(["Index", "Level", "Cutoff", "This model", "Reading"], values))
-    lines = (f"{cut.replications} samples of N = {cut.n_obs}{_left_out(result)} from the fitted model and from the model with "
+    left_out = _left_out(result) if cut.pattern_rows is None else ""  # the gaps carried over: said below
+    lines = (f"{cut.replications} samples of N = {cut.n_obs}{left_out} from the fitted model and from the model with "
              f"{cut.misspecification} left out (seed {cut.seed}).",)
+    if cut.pattern_rows is not None:
+        lines += (f"The missing-data pattern was carried over: each simulated row takes the gaps of one of the "
+                  f"{cut.pattern_rows} data rows, drawn at random (missing completely at random, with the data's "
+                  f"patterns in their proportions), and each sample is fitted by full-information ML, as the data "
+                  f"were.",)
     if result.method.ordinal:
         lines += (f"Ordinal items: each sample's latent responses are cut at the fitted thresholds, and the sample is "
                   f"fitted by {result.method.weighting.phrase} on its own thresholds and polychoric correlations. CFI "

@@ -13,6 +13,15 @@ silently.  Resamples are refitted together, in batches (pipeline.continuous.repl
 each resample's draw comes from its own seed, so the results do not depend on the batches or
 the worker processes.
 
+A full-information fit (rows with gaps) is bootstrapped by resampling the rows with their gaps (under a
+design, whole clusters with their rows' weights) and refitting each resample by full-information ML (its
+saturated model by EM), one at a time; BCa's influence values are each row's casewise score through the
+observed Hessian (the analytic jackknife of the full-information estimate), weighted and summed within
+clusters under a design.  The Bollen-Stine transformation of rows with gaps (Enders 2002; Savalei & Yuan 2009) is not built,
+so the Bollen-Stine p-value is refused with that reason (and left out, with the reason in the report, when not
+asked for).  A resample whose saturated model cannot be estimated (an item with fewer than two answers, a
+pair of items no row answers both) is counted apart from those that did not converge.
+
 Under a sampling design whole clusters are resampled (each row its own cluster
 when none is given), independently within strata, and every row keeps its
 weight (the cluster bootstrap; Field & Welsh 2007): every statistic above is
@@ -33,17 +42,25 @@ from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
 from cfa_tool.data.moments import numeric_columns, sample_moments
-from cfa_tool.errors import EstimationError, OptionError
+from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fits
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
-from cfa_tool.method import WeightKind
+from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.pipeline.inputs import (_fit_rows, converged, design_test, moments_for, odd_values_named,
-                                      ordinal_items_of, read_inputs_with_notes, refits_complete_rows, with_design,
+                                      ordinal_items_of, read_inputs_with_notes, refit_missing_handling, with_design,
                                       with_odd_values, without_exploratory_blocks)
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.parallel import REFITS_TOGETHER, run_tasks
+
+
+#: why an ordinal fit is not bootstrapped under a design (one message for the Python call and the command)
+ORDINAL_DESIGN = "the bootstrap of ordinal items does not take a sampling design yet"
+#: why a full-information fit has no Bollen-Stine p-value
+BOLLEN_STINE_WITH_GAPS = ("the Bollen-Stine bootstrap resamples rows transformed so that the model holds exactly, and "
+                          "that transformation of rows with gaps (Enders 2002; Savalei & Yuan 2009) is not built yet, so "
+                          "it is not computed for a full-information fit")
 
 
 @dataclass(frozen=True)
@@ -72,9 +89,12 @@ class BootstrapResult(Presentable):
     intervals: tuple[BootInterval, ...]
     bollen_stine_p: float | None
     bollen_stine_converged: int | None
-    #: resamples whose answers could not be analysed (ordinal items: an answer category lost), apart from those
-    #: whose fit did not converge
+    #: resamples whose answers could not be analysed (ordinal items: an answer category lost; rows with gaps: an
+    #: item's or a pair's answers too few for the saturated model), apart from those whose fit did not converge
     failed: int = 0
+    #: why the Bollen-Stine p-value was not computed where a continuous fit's would be (None: it was, or was not
+    #: asked for)
+    bollen_stine_not_computed: str | None = None
 
     def to_dict(self) -> dict:
         """The fit and, under "result", the bootstrap."""
@@ -82,29 +102,54 @@ class BootstrapResult(Presentable):
             "replications": self.replications, "converged": self.converged,
             "not_converged": self.replications - self.converged - self.failed, "failed": self.failed, "seed": self.seed,
             "bollen_stine_p_value": self.bollen_stine_p, "bollen_stine_converged": self.bollen_stine_converged,
+            "bollen_stine_not_computed": self.bollen_stine_not_computed,
             "intervals": [i.to_dict() for i in self.intervals]})}
 
 
 def _replicate(tasks: list) -> list:
-    """(converged, values, standardized values, chi-square) of each task's resample, refitted together."""
-    spec, _, names, _, start, _ = tasks[0]
-    fits = replicate_fits(spec, [_resample(rows, names, seed, design) for _, rows, _, seed, _, design in tasks], start,
-                          fit_indices_wanted=False)
-    return [(fit.converged, fit.values, fit.standardized, fit.chi_square) for fit in fits]
+    """(converged, values, standardized values, chi-square, failed) of each task's resample, refitted together;
+    failed: a resample of rows with gaps whose saturated model cannot be estimated."""
+    spec, _, names, _, start, _, gaps = tasks[0]
+    samples = []
+    for _, rows, _, seed, _, design, _ in tasks:
+        try:
+            samples.append(_resample(rows, names, seed, design, gaps))
+        except (DataError, EstimationError):  # too few answers of an item or pair, or EM without convergence
+            samples.append(None)
+    fits = iter(replicate_fits(spec, [m for m in samples if m is not None], start, fit_indices_wanted=False,
+                               full_information=gaps))
+    out = []
+    for m in samples:
+        if m is None:
+            out.append((False, None, None, float("nan"), True))
+        else:
+            fit = next(fits)
+            out.append((fit.converged, fit.values, fit.standardized, fit.chi_square, False))
+    return out
 
 
-def _resample(rows: np.ndarray, names: tuple[str, ...], seed: int, design):
+def _resample(rows: np.ndarray, names: tuple[str, ...], seed: int, design, gaps: bool = False):
+    """One resample's moments (``gaps``: of rows with gaps, for a full-information refit); under a design
+    sampling weights are rescaled to sum to the resample's rows with gaps, as the fit of those rows would
+    rescale them (the estimates do not depend on it)."""
     rng = np.random.default_rng(seed)
     if design is None:
-        return moments_from_rows(rows[rng.integers(0, len(rows), len(rows))], names)
+        return moments_from_rows(rows[rng.integers(0, len(rows), len(rows))], names, full_information=gaps)
     if design.kind is WeightKind.FREQUENCY and design.clusters is None:
         counts = expanded_counts(design, rng)
         kept = counts > 0
-        return moments_from_rows(rows[kept], names, weights=counts[kept].astype(float), n_obs=int(counts.sum()))
+        return moments_from_rows(rows[kept], names, weights=counts[kept].astype(float), n_obs=int(counts.sum()),
+                                 full_information=gaps, weight_kind=design.kind)
     picked = resampled_rows(design, rng)
     w = design.weights[picked]
-    n_obs = int(round(w.sum())) if design.kind is WeightKind.FREQUENCY else len(picked)
-    return moments_from_rows(rows[picked], names, weights=w, n_obs=n_obs)
+    if design.kind is WeightKind.FREQUENCY:
+        n_obs = int(round(w.sum()))
+    else:
+        n_obs = len(picked)
+        if gaps:
+            w = w * (len(w) / w.sum())
+    return moments_from_rows(rows[picked], names, weights=w, n_obs=n_obs, full_information=gaps,
+                             weight_kind=design.kind)
 
 
 def sampling_units(design) -> list[list[np.ndarray]]:
@@ -160,16 +205,81 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     vech(d_i d_i') - vech(S) for ds, d_i its deviation from the means (Hampel et al. 1986).
     Under a sampling design the moments are weighted, each row's influence is multiplied by its
     weight (rescaled to mean one) and the rows of a cluster are summed: one value per cluster.
+    Rows with gaps (``rows`` holding NaN): the full-information estimate's influence
+    (:func:`full_information_influence`), under a design weighted and summed within clusters as above.
     Entries are affine in theta; standardized values follow by the chain rule, their
     derivatives taken by central differences of the closed-form standardization."""
     from cfa_tool.assessment.standardized import standardize_entries
-    from cfa_tool.numerics.linalg import scaled_inverse
-    from cfa_tool.pipeline.continuous import FitOptions, estimate
-    from cfa_tool.inference.robust import normal_weight, vech_indices
+    from cfa_tool.pipeline.continuous import estimate
 
     w = design.weights if design is not None else None
-    est = estimate(spec, [(None, moments_from_rows(rows, names, weights=w))], FitOptions(diagnostics=False), start=theta)
+    gaps = bool(np.isnan(rows).any())
+    options = FitOptions(diagnostics=False, missing=MissingData.FULL_INFORMATION if gaps else None)
+    kind = design.kind if design is not None else WeightKind.SAMPLING
+    est = estimate(spec, [(None, moments_from_rows(rows, names, weights=w, full_information=gaps, weight_kind=kind))],
+                   options, start=theta)
     model, table, theta = est.model, est.table, est.theta
+    if gaps:
+        influence_theta = full_information_influence(est.likelihood, theta)
+        if design is not None:  # weighted scores (weights rescaled to mean one), summed within clusters
+            influence_theta = influence_theta * (w * len(w) / w.sum())[:, None]
+            influence_theta = np.vstack([influence_theta[rows_of].sum(axis=0) for clusters in sampling_units(design)
+                                         for rows_of in clusters])
+    else:
+        influence_theta = _complete_row_influence(est, rows, w, design)
+    codes, erows, ecols = table.entry_arrays()
+
+    def standardized(t: np.ndarray) -> np.ndarray:
+        return standardize_entries(model.matrices(t), codes, erows, ecols, model.entry_values(t))[0]
+
+    step = 1e-6 * np.maximum(1.0, np.abs(theta))
+    d_std = np.empty((len(codes), len(theta)))
+    for k in range(len(theta)):
+        up, down = theta.copy(), theta.copy()
+        up[k] += step[k]
+        down[k] -= step[k]
+        d_std[:, k] = (standardized(up) - standardized(down)) / (2 * step[k])
+    return influence_theta @ model.J.T, influence_theta @ d_std.T
+
+
+def full_information_influence(likelihood, theta: np.ndarray) -> np.ndarray:
+    """Each row's empirical influence on the full-information estimate (N, q).
+
+    The estimate solves sum_i g_i(theta) = 0, g_i the gradient of row i's term of the casewise
+    discrepancy f_i = log|Sigma_oo| + r_i' Sigma_oo^-1 r_i (r_i = x_i,o - mu_o; Arbuckle 1996):
+    dF_i/dSigma = A_i - u_i u_i' and dF_i/dmu = -2 u_i, with A_i = Sigma_oo^-1 embedded in p x p and
+    u_i = A_i r_i (the row-by-row form of estimation.fiml's gradient).  By the implicit function
+    theorem row i's influence is -H^-1 g_i, H the observed Hessian of the discrepancy (Hampel et al.
+    1986); the jackknife's leave-one-out differences approximate it (Efron & Tibshirani 1993, ch. 11)."""
+    from cfa_tool.data.patterns import embedded_inverse
+    from cfa_tool.inference.standard_errors import observed_information
+    from cfa_tool.numerics.linalg import scaled_inverse
+
+    [data] = likelihood.patterns
+    model = likelihood.model
+    mats = model.matrices(theta)
+    A, _ = embedded_inverse(mats.implied_covariance(), data.observed)
+    rows = data.rows
+    resid = np.where(np.isnan(rows), 0.0, rows - mats.implied_mean())
+    u = (A[data.index] @ resid[:, :, None])[:, :, 0]
+    d_sigma, d_mu = model.jacobian(theta, 0)
+    q, p = len(theta), model.p
+    flat = d_sigma.reshape(q, p * p)
+    per_pattern = A.reshape(len(A), p * p) @ flat.T  # (P, q): the A_i part, shared by a pattern's rows
+    outer = np.einsum("ni,qij,nj->nq", u, d_sigma, u)  # u_i' D_a u_i
+    scores = per_pattern[data.index] - outer - 2.0 * u @ d_mu.T
+    hessian = likelihood.observed_hessian(theta)
+    if hessian is None:
+        hessian = observed_information(likelihood.gradient, theta, central=True)
+    return -scores @ scaled_inverse(hessian)
+
+
+def _complete_row_influence(est, rows: np.ndarray, w: np.ndarray | None, design) -> np.ndarray:
+    """Each complete row's (or cluster's) influence on the ML estimate (N, q); see :func:`influence_values`."""
+    from cfa_tool.numerics.linalg import scaled_inverse
+    from cfa_tool.inference.robust import normal_weight, vech_indices
+
+    model, theta = est.model, est.theta
     sigma = model.implied(theta)
     I, J = vech_indices(len(sigma))
     d_sigma, _ = model.jacobian(theta, 0)
@@ -188,20 +298,7 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     hessian = est.likelihood.observed_hessian(theta)
     if hessian is None:
         hessian = 2.0 * (delta.T @ WD)
-    influence_theta = 2.0 * U @ WD @ scaled_inverse(hessian)  # (N, q); the Hessian is symmetric
-    codes, erows, ecols = table.entry_arrays()
-
-    def standardized(t: np.ndarray) -> np.ndarray:
-        return standardize_entries(model.matrices(t), codes, erows, ecols, model.entry_values(t))[0]
-
-    step = 1e-6 * np.maximum(1.0, np.abs(theta))
-    d_std = np.empty((len(codes), len(theta)))
-    for k in range(len(theta)):
-        up, down = theta.copy(), theta.copy()
-        up[k] += step[k]
-        down[k] -= step[k]
-        d_std[:, k] = (standardized(up) - standardized(down)) / (2 * step[k])
-    return influence_theta @ model.J.T, influence_theta @ d_std.T
+    return 2.0 * U @ WD @ scaled_inverse(hessian)  # (N, q); the Hessian is symmetric
 
 
 def acceleration(influence: np.ndarray) -> np.ndarray:
@@ -234,7 +331,8 @@ def bollen_stine_rows(rows: np.ndarray, sigma: np.ndarray, weights: np.ndarray |
 def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int = 1000, seed: int = 1,
                   bollen_stine: bool | None = None, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
                   progress=None, design=None) -> BootstrapResult:
-    """Bootstrap a converged single-group fit of complete ``rows`` (columns in the model's order); ``design``
+    """Bootstrap a converged single-group fit of ``rows`` (columns in the model's order; with gaps for a
+    full-information fit, each resample then refitted so); ``design``
     the rows' data.sample_design.RowDesign, if any (clusters resampled, weights kept).  ``bollen_stine``: the
     Bollen-Stine p-value (None: where it applies, that is for continuous items).  A fit of ordinal items is
     bootstrapped by refitting each resample with its own thresholds and polychoric correlations (``rows`` then
@@ -246,17 +344,25 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     replications, seed = bootstrap_options(replications, seed, workers)
     if result.method.ordinal:
         if design is not None:
-            raise OptionError("ordinal items are not yet fitted with a sampling design, so they cannot be bootstrapped "
-                              "with one")
+            raise OptionError(f"{ORDINAL_DESIGN}; leave out the design")
         if bollen_stine is True:
             raise OptionError("the Bollen-Stine bootstrap of the test transforms continuous rows so that the model "
                               "holds exactly, which has no counterpart for ordinal answers; leave it out")
         return _bootstrap_ordinal(result, spec, rows, replications, seed, workers, scheduler, progress)
+    gaps = result.method.missing is MissingData.FULL_INFORMATION
+    not_computed = None
+    if gaps:
+        if bollen_stine is True:
+            raise OptionError(f"{BOLLEN_STINE_WITH_GAPS}; leave it out, or bootstrap the complete rows "
+                              f"(--incomplete-rows listwise)")
+        if bollen_stine is None:
+            not_computed = BOLLEN_STINE_WITH_GAPS
+        bollen_stine = False
     moments_rows = rows
     names = result.observed
     start = result.theta
     seeds = np.random.SeedSequence(seed).generate_state(2 * replications)
-    tasks = [(spec, moments_rows, names, int(s), start, design) for s in seeds[:replications]]
+    tasks = [(spec, moments_rows, names, int(s), start, design, gaps) for s in seeds[:replications]]
     draws = run_tasks(_replicate, tasks, workers, scheduler, progress, REFITS_TOGETHER, batched=True)
     ok = [d for d in draws if d[0]]
     if len(ok) < 2:
@@ -273,14 +379,15 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     if bollen_stine is not False:
         transformed = bollen_stine_rows(moments_rows, result.implied_covariance,
                                         design.weights if design is not None else None)
-        btasks = [(spec, transformed, names, int(s), start, design) for s in seeds[replications:]]
+        btasks = [(spec, transformed, names, int(s), start, design, False) for s in seeds[replications:]]
         bdraws = [d for d in run_tasks(_replicate, btasks, workers, scheduler, progress, REFITS_TOGETHER, batched=True)
                   if d[0]]
         converged_bs = len(bdraws)
         if bdraws:
             p_bs = float(np.mean([d[3] >= result.fit.chi_square for d in bdraws]))
     return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed,
-                           intervals=intervals, bollen_stine_p=p_bs, bollen_stine_converged=converged_bs)
+                           intervals=intervals, bollen_stine_p=p_bs, bollen_stine_converged=converged_bs,
+                           failed=sum(d[4] for d in draws), bollen_stine_not_computed=not_computed)
 
 
 def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications: int, seed: int, workers, scheduler,
@@ -368,22 +475,24 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     design = design_columns(weights, cluster, strata, weight_kind)
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
         if design is not None:
-            raise OptionError(f"ordinal items are not yet fitted with a sampling design, so the {design.names[0][0]} "
-                              f"column '{design.names[0][1]}' cannot apply to their bootstrap; leave out the design")
+            raise OptionError(f"{ORDINAL_DESIGN}, so the {design.names[0][0]} column '{design.names[0][1]}' cannot "
+                              f"apply; leave out the design")
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
             result = with_odd_values(_fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator),
                                      loaded)
         return bootstrap_fit(result, spec, numeric_columns(frame, result.observed, source), replications, seed,
                              bollen_stine, False, workers, scheduler, progress)
-    refits_complete_rows(frame, spec.observed_names, missing, "bootstrap")
-    options = FitOptions()
     if design is not None:
         frame, design_notes = check_design(frame, design, spec.observed_names, None, source)
         notes = list(notes) + design_notes
+    handling, missing_notes = refit_missing_handling(frame, spec.observed_names, missing)
+    notes = missing_notes + list(notes)
+    options = FitOptions(missing=handling)
+    if design is not None:
         options = design_test(options, design)
-        [(_, moments)], _ = moments_for(spec, frame, source, design=design)
+        [(_, moments)], _ = moments_for(spec, frame, source, missing=handling, design=design)
     else:
-        moments = sample_moments(frame, spec.observed_names, source)
+        moments = sample_moments(frame, spec.observed_names, source, missing=handling)
     with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
         result = converged(fit_moments(spec, moments, options))
     result = replace(result, warnings=tuple(notes) + result.warnings)  # what reading and the row filters did

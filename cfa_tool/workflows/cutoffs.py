@@ -12,6 +12,11 @@ cutoff separates the two at 95% when 95% of misspecified samples are beyond it
 and 95% of correct samples are not (likewise at 90%).  The choice of
 misspecification is this tool's reading of the method, and the cutoffs hold
 for that misspecification only.
+
+With gaps in the data (a full-information fit) the missing-data pattern is carried over: each simulated
+sample takes, row by row, the gaps of a row drawn at random from the data's rows (the observed patterns
+resampled, so missing completely at random with the data's pattern frequencies), and is fitted by
+full-information ML as the data were; the report says so.
 """
 
 from __future__ import annotations
@@ -25,10 +30,11 @@ import pandas as pd
 
 from cfa_tool import options as check
 from cfa_tool.data.moments import sample_moments
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import DataError, EstimationError, OptionError
+from cfa_tool.method import MissingData
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fits
 from cfa_tool.pipeline.inputs import (_fit_rows, converged, odd_values_named, ordinal_items_of, read_inputs_with_notes,
-                                      refits_complete_rows, with_odd_values)
+                                      refit_missing_handling, with_odd_values)
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
@@ -72,6 +78,9 @@ class CutoffResult(Presentable):
     misspecification_size: float = float("nan")  # standardized size of what is left out
     #: ordinal items: share of the samples from the fitted model that its adjusted test rejected at .05
     correct_rejected: float | None = None
+    #: rows with gaps: how many data rows' missing-data patterns the simulated samples took their gaps from
+    #: (None: complete rows were simulated)
+    pattern_rows: int | None = None
 
     @property
     def statistic(self) -> str:
@@ -85,15 +94,40 @@ class CutoffResult(Presentable):
             "converged_correct": self.converged_correct, "converged_misspecified": self.converged_misspecified,
             "seed": self.seed, "n_obs": self.n_obs, "misspecification_size": self.misspecification_size,
             "indices_from": self.statistic, "correct_model_rejected": self.correct_rejected,
+            "missing_data_patterns_from_rows": self.pattern_rows,
             "cutoffs": [c.to_dict() for c in self.cutoffs]})}
 
 
 def _replicate(tasks: list) -> list:
-    """(converged, CFI, RMSEA, SRMR) of each task's simulated data set, fitted together."""
-    spec, _, names, _, _, start = tasks[0]
-    samples = [moments_from_rows(simulate_rows(sigma, n, np.random.default_rng(seed)), names)
-               for _, sigma, _, n, seed, _ in tasks]
-    return [(fit.converged, fit.cfi, fit.rmsea, fit.srmr) for fit in replicate_fits(spec, samples, start)]
+    """(converged, CFI, RMSEA, SRMR) of each task's simulated data set, fitted together; with the data's
+    missing-data patterns (an (R, p) mask of answered items, or None), each sample takes the gaps of rows drawn
+    from them and is fitted by full-information ML (a sample whose saturated model cannot be estimated counts as
+    not converged)."""
+    spec, _, names, _, _, start, patterns, mean = tasks[0]
+    if patterns is None:
+        samples = [moments_from_rows(simulate_rows(sigma, n, np.random.default_rng(seed)), names)
+                   for _, sigma, _, n, seed, _, _, _ in tasks]
+        return [(fit.converged, fit.cfi, fit.rmsea, fit.srmr) for fit in replicate_fits(spec, samples, start)]
+    out = []
+    for _, sigma, _, n, seed, _, _, _ in tasks:
+        rng = np.random.default_rng(seed)
+        rows = carried_gaps(simulate_rows(sigma, n, rng, mean), patterns, rng)
+        try:
+            sample = moments_from_rows(rows, names, full_information=True)
+        except (DataError, EstimationError):  # an item or a pair of items without enough answers
+            out.append((False, np.nan, np.nan, np.nan))
+            continue
+        [fit] = replicate_fits(spec, [sample], start, full_information=True)
+        out.append((fit.converged, fit.cfi, fit.rmsea, fit.srmr))
+    return out
+
+
+def carried_gaps(rows: np.ndarray, patterns: np.ndarray, rng: np.random.Generator) -> np.ndarray:
+    """``rows`` (complete, simulated) with the gaps of data rows drawn at random with replacement: row i takes
+    the missing-data pattern of a random row of ``patterns`` (rows x items, True where answered)."""
+    out = rows.copy()
+    out[~patterns[rng.integers(0, len(patterns), len(rows))]] = np.nan
+    return out
 
 
 N_STEPS = (2, 4, 8, 16)  # multiples of N tried when no cutoff exists at the data's N
@@ -104,7 +138,10 @@ def misspecified_covariance(spec: Spec, result: FitResult, scale: float = 1.0,
                             matrices=None) -> tuple[np.ndarray, str, float]:
     """The misspecified population's covariance, what is left out, and its standardized size; ``matrices``: the
     fitted model's matrices when they are not those of ``spec`` at ``result.theta`` (ordinal items)."""
-    mats = matrices if matrices is not None else StructuredModel(build_parameter_table(spec)).matrices(result.theta)
+    if matrices is None:
+        means = result.method.missing is MissingData.FULL_INFORMATION  # its theta holds the items' intercepts
+        matrices = StructuredModel(build_parameter_table(spec, mean_structure=means)).matrices(result.theta)
+    mats = matrices
     L = mats.L.copy()
     T = mats.T.copy()
     phi = mats.latent_covariance()
@@ -146,7 +183,10 @@ def cutoff_options(replications: int, seed: int, workers: int | None) -> tuple[i
 
 
 def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: int = 1, workers: int | None = None,
-                scheduler: str | None = None, progress=None) -> CutoffResult:
+                scheduler: str | None = None, progress=None, patterns: np.ndarray | None = None) -> CutoffResult:
+    """The cutoffs of a converged single-group fit; ``patterns``: for a full-information fit, the (rows, items)
+    mask of the answers of the data's rows (in the order of ``result.observed``), whose gaps the simulated
+    samples take."""
     if result.multigroup or not result.converged or result.fit is None:
         raise OptionError("model-specific cutoffs need a converged single-group fit")
     replications, seed = cutoff_options(replications, seed, workers)
@@ -157,8 +197,13 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
         sample = _ordinal_sampler(spec, result, replications, seeds, workers, scheduler, progress)
         observed = {"cfi": result.robust.cfi_robust, "rmsea": result.robust.rmsea_robust, "srmr": result.fit.srmr}
     else:
+        full_information = result.method.missing is MissingData.FULL_INFORMATION
+        if full_information != (patterns is not None):
+            raise OptionError("the cutoffs of a full-information fit carry the data's missing-data patterns over, so "
+                              "they need them (patterns: the rows' answered items), and only such a fit takes them; "
+                              "cutoffs(model, data) finds them")
         misspecify = partial(misspecified_covariance, spec, result)
-        sample = _sampler(spec, result, replications, seeds, workers, scheduler, progress)
+        sample = _sampler(spec, result, replications, seeds, workers, scheduler, progress, patterns)
         observed = {"cfi": result.fit.cfi, "rmsea": result.fit.rmsea, "srmr": result.fit.srmr}
     wrong, what, size = misspecify()
     correct, mis = sample(result.implied_covariance, n), sample(wrong, n)
@@ -199,7 +244,8 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
     rejected = float(np.mean(correct[:, len(INDICES)] < 0.05)) if correct.shape[1] > len(INDICES) else None
     return CutoffResult(fit=result, misspecification=what, replications=replications, converged_correct=len(correct),
                         converged_misspecified=len(mis), seed=seed, n_obs=n, cutoffs=tuple(cutoffs),
-                        misspecification_size=size, correct_rejected=rejected)
+                        misspecification_size=size, correct_rejected=rejected,
+                        pattern_rows=len(patterns) if patterns is not None else None)
 
 
 def _latent_response_misspecified(spec: Spec, result: FitResult, scale: float = 1.0) -> tuple[np.ndarray, str, float]:
@@ -234,13 +280,16 @@ def _ordinal_sampler(spec: Spec, result: FitResult, replications: int, seeds: np
     return sample
 
 
-def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.SeedSequence, workers, scheduler, progress):
+def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.SeedSequence, workers, scheduler, progress,
+             patterns: np.ndarray | None = None):
     """A function (population covariance, N) -> the fit indices of the converged simulated samples;
-    each call draws fresh seeds from the one seed sequence, so the whole run repeats exactly."""
+    each call draws fresh seeds from the one seed sequence, so the whole run repeats exactly.  With
+    ``patterns`` the samples take the data's gaps (see :func:`_replicate`), centred at the fitted means."""
+    mean = result.groups[0].implied_mean if patterns is not None else None
 
     def sample(sigma: np.ndarray, n: int) -> np.ndarray:
         states = seeds.spawn(1)[0].generate_state(replications)
-        tasks = [(spec, sigma, result.observed, n, int(s), result.theta) for s in states]
+        tasks = [(spec, sigma, result.observed, n, int(s), result.theta, patterns, mean) for s in states]
         draws = run_tasks(_replicate, tasks, workers, scheduler, progress, REFITS_TOGETHER, batched=True)
         return np.array([d[1:] for d in draws if d[0]]).reshape(-1, len(INDICES))
 
@@ -282,8 +331,13 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
             result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
         return fit_cutoffs(spec, with_odd_values(result, loaded), replications, seed, workers, scheduler, progress)
-    refits_complete_rows(frame, spec.observed_names, missing, "cutoffs")
+    handling, missing_notes = refit_missing_handling(frame, spec.observed_names, missing)
+    moments = sample_moments(frame, spec.observed_names, source, missing=handling)
     with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
-        result = converged(fit_moments(spec, sample_moments(frame, spec.observed_names, source), FitOptions()))
-    result = replace(result, warnings=tuple(notes) + result.warnings)  # what reading and the row filters did
-    return fit_cutoffs(spec, with_odd_values(result, loaded), replications, seed, workers, scheduler, progress)
+        result = converged(fit_moments(spec, moments, FitOptions(missing=handling)))
+    result = replace(result, warnings=tuple(missing_notes) + tuple(notes) + result.warnings)  # reading, filters
+    patterns = None
+    if handling is MissingData.FULL_INFORMATION:
+        patterns = ~np.isnan(moments.rows[:, [moments.names.index(n) for n in result.observed]])
+    return fit_cutoffs(spec, with_odd_values(result, loaded), replications, seed, workers, scheduler, progress,
+                       patterns)

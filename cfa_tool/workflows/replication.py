@@ -9,6 +9,14 @@
 A split-half mode divides one data set at random (seeded) and runs both
 directions (double cross-validation; Cudeck & Browne 1983).
 
+Rows with gaps are kept as ``fit`` keeps them: a sample whose rows have gaps is fitted by
+full-information ML (its saturated moments by EM), and when the validation sample has gaps the tight
+check and the cross-validation index use its full-information discrepancy from the calibration
+covariance matrix, the means at their ML estimate given that matrix
+(estimation.fiml.fixed_covariance_discrepancy), which without gaps is the discrepancy above; the
+random halves are then halves of every row with an answer.  ``--incomplete-rows listwise`` uses the
+complete rows instead.
+
 Ordinal items (and continuous items beside them) are fitted as ``fit`` fits them: least squares on
 polychoric (polyserial, Pearson) correlations.  The tight check then compares the validation
 sample's correlations r with those the calibration estimates imply, rho: N (r - rho)' W (r - rho)
@@ -27,7 +35,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import load_frame, load_spec, make_options, refits_complete_rows
+from cfa_tool.pipeline.inputs import load_frame, load_spec, make_options, refit_missing_handling
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, sample_moments
@@ -36,7 +44,7 @@ from cfa_tool.errors import DataError, EstimationError, OptionError, estimation_
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.pipeline.continuous import fit_moments
 from cfa_tool.language.spec import Spec
-from cfa_tool.method import Weighting
+from cfa_tool.method import MissingData, Weighting
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 
@@ -92,30 +100,51 @@ def discrepancy(S: np.ndarray, sigma: np.ndarray) -> float:
     return float(log_det_pd(sigma) + np.trace(np.linalg.solve(sigma, S)) - log_det_pd(S) - len(S))
 
 
-def _moments(spec: Spec, frame: pd.DataFrame, source: str) -> SampleMoments:
+def _moments(spec: Spec, frame: pd.DataFrame, source: str, missing=None) -> SampleMoments:
+    """The sample's moments, rows with gaps handled as fit handles them (``missing`` as given to the command)."""
     check_columns(spec, [str(c) for c in frame.columns], source)
-    return sample_moments(frame, spec.observed_names, source)
+    handling, _ = refit_missing_handling(frame, spec.observed_names, missing)
+    return sample_moments(frame, spec.observed_names, source, missing=handling)
+
+
+def _has_gaps(moments: SampleMoments) -> bool:
+    return moments.rows is not None and bool(np.isnan(moments.rows).any())
 
 
 def replicate_moments(spec: Spec, calibration: SampleMoments, validation: SampleMoments, **options) -> Replication:
-    fit_options = replace(make_options(options), diagnostics=False)
+    """The replication of continuous items; a sample whose rows have gaps (moments by EM) is fitted by
+    full-information ML, and the tight check of a validation sample with gaps is its full-information one."""
+
+    def fit_options(moments: SampleMoments):
+        missing = MissingData.FULL_INFORMATION if _has_gaps(moments) else MissingData.LISTWISE
+        return replace(make_options({**options, "missing": options.get("missing") or missing}), diagnostics=False)
+
     with estimation_of(f"calibration sample {calibration.source}"):
-        cal = fit_moments(spec, calibration, fit_options)
+        cal = fit_moments(spec, calibration, fit_options(calibration))
     if not cal.converged:
         raise EstimationError(f"the model did not converge in the calibration sample {calibration.source} ({cal.message})")
     with estimation_of(f"validation sample {validation.source}"):
-        loose = fit_moments(spec, validation, fit_options)
+        loose = fit_moments(spec, validation, fit_options(validation))
     order = [validation.names.index(n) for n in cal.observed]
     S_val = validation.covariance[np.ix_(order, order)]
     sigma_cal = cal.implied_covariance
-    F = discrepancy(S_val, sigma_cal)
+    if _has_gaps(validation):
+        from cfa_tool.data.patterns import pattern_data
+        from cfa_tool.estimation.fiml import fixed_covariance_discrepancy
+
+        rows = pattern_data(validation.rows[:, order])
+        saturated = (validation.means[order], S_val)
+        F = fixed_covariance_discrepancy(rows, sigma_cal, saturated)
+        F_saturated = fixed_covariance_discrepancy(rows, cal.sample_covariance, saturated)
+    else:
+        F, F_saturated = discrepancy(S_val, sigma_cal), discrepancy(S_val, cal.sample_covariance)
     n = validation.n_obs
     p = len(S_val)
     df = p * (p + 1) // 2
     chi = n * F
     return Replication(
         calibration.source, validation.source, cal, loose, chi, df, chi_square_p(chi, df), rmsea_value(chi, df, n),
-        F, discrepancy(S_val, cal.sample_covariance),
+        F, F_saturated,
     )
 
 
@@ -190,29 +219,34 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                           "new data (or give one file as --data to split it in two random halves)")
     cal_frame, cal_source = load_frame(calibration)
     val_frame, val_source = load_frame(validation)
-    if not ordinal_items:
-        for frame, source in ((cal_frame, cal_source), (val_frame, val_source)):
-            check_columns(spec, [str(c) for c in frame.columns], source)
-            refits_complete_rows(frame, spec.observed_names, missing, "replicate")
     if ordinal_items:
         return replicate_ordinal(spec, _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise),
                                  _ordinal_moments(spec, val_frame, val_source, ordinal_items, pairwise), method, **options)
-    return replicate_moments(spec, _moments(spec, cal_frame, cal_source), _moments(spec, val_frame, val_source), **options)
+    return replicate_moments(spec, _moments(spec, cal_frame, cal_source, missing),
+                             _moments(spec, val_frame, val_source, missing), **options)
 
 
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1,
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
                **options) -> tuple[Replication, Replication]:
-    """Random halves A and B (seeded) of the complete rows: calibrate on A and validate on B, then the reverse."""
+    """Random halves A and B (seeded) of the rows analysed (with continuous items and gaps, every row with an
+    answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse."""
     seed = check.seed(seed)
     spec = load_spec(model)
     ordinal_items, method, _ = _ordinal_setup(spec, ordinal, ordinal_estimator, options if missing is None else {**options, "missing": missing})
     frame, source = load_frame(data)
     check_columns(spec, [str(c) for c in frame.columns], source)
-    refits_complete_rows(frame, spec.observed_names, missing, "replicate")
-    complete = frame.dropna(subset=list(spec.observed_names))
+    handling = MissingData.LISTWISE
+    if not ordinal_items:
+        handling, _ = refit_missing_handling(frame, spec.observed_names, missing)
+    if handling is MissingData.FULL_INFORMATION:
+        complete = frame.dropna(subset=list(spec.observed_names), how="all")
+        kind = "rows with answers"
+    else:
+        complete = frame.dropna(subset=list(spec.observed_names))
+        kind = "complete rows"
     if len(complete) < 4 * len(spec.observed_names):
-        raise DataError(f"{source}: {len(complete)} complete rows are too few to split into two halves for "
+        raise DataError(f"{source}: {len(complete)} {kind} are too few to split into two halves for "
                         f"{len(spec.observed_names)} variables")
     order = np.random.default_rng(seed).permutation(len(complete))
     half = len(order) // 2
@@ -222,7 +256,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
         ma = _ordinal_moments(spec, a, f"{source} (half A, seed {seed})", ordinal_items, False)
         mb = _ordinal_moments(spec, b, f"{source} (half B, seed {seed})", ordinal_items, False)
         return (replicate_ordinal(spec, ma, mb, method, **options), replicate_ordinal(spec, mb, ma, method, **options))
-    ma = sample_moments(a, spec.observed_names, f"{source} (half A, seed {seed})")
-    mb = sample_moments(b, spec.observed_names, f"{source} (half B, seed {seed})")
+    ma = sample_moments(a, spec.observed_names, f"{source} (half A, seed {seed})", missing=handling)
+    mb = sample_moments(b, spec.observed_names, f"{source} (half B, seed {seed})", missing=handling)
 
     return replicate_moments(spec, ma, mb, **options), replicate_moments(spec, mb, ma, **options)

@@ -193,19 +193,20 @@ def test_robust_comparison_with_gaps_says_why_the_positive_version_is_missing(hs
 
 
 @pytest.mark.parametrize("command", ["bootstrap", "cutoffs", "replicate"])
-def test_commands_that_refit_complete_rows_never_drop_rows_silently(hs_data, command):
-    # fit keeps every row by default; these commands refit complete rows only, so with gaps leaving rows out
-    # must be asked for (a new user's file lost 700 of 900 rows without a word)
+def test_commands_that_refit_keep_rows_with_gaps_as_fit_does(hs_data, command):
+    # fit keeps every row by default (full-information ML); so do these commands' refits, and the complete rows
+    # only are used when asked for (a new user's file lost 700 of 900 rows without a word before either existed)
     data = hs_data.copy()
     data.loc[data.index[:30], "x5"] = np.nan
     run = {"bootstrap": lambda **o: cfa_tool.bootstrap(THREE_FACTORS, data, replications=20, bca=False,
                                                        bollen_stine=False, **o),
            "cutoffs": lambda **o: cfa_tool.cutoffs(THREE_FACTORS, data, replications=20, **o),
            "replicate": lambda **o: split_half(THREE_FACTORS, data, **o)}[command]
-    with pytest.raises(OptionError, match=f"30 of 301 rows miss some answers.*'{command}' refits the complete rows"):
-        run()
-    with pytest.raises(OptionError, match="full-information ML cannot apply here yet"):
-        run(missing="full-information")
+    for missing in (None, "full-information"):
+        kept = run(missing=missing)
+        fitted = kept[0].calibration_result if command == "replicate" else kept.fit
+        assert fitted.method.missing.value == "full-information"
+        assert fitted.n_obs in (301, 150, 151)
     kept = run(missing="listwise")
     fitted = kept[0].calibration_result if command == "replicate" else kept.fit
     assert fitted.n_obs in (271, 135, 136)
@@ -216,7 +217,7 @@ def test_a_few_incomplete_rows_are_left_out_and_said(hs_data):
 
     data = hs_data.copy()
     data.loc[data.index[:5], "x5"] = np.nan  # under 5% of the rows
-    boot = cfa_tool.bootstrap(THREE_FACTORS, data, replications=20, bca=False, bollen_stine=False)
+    boot = cfa_tool.bootstrap(THREE_FACTORS, data, replications=20, bca=False, bollen_stine=False, missing="listwise")
     assert boot.fit.n_obs == 296
     assert "(5 of 301 rows with missing answers left out" in bootstrap_report(boot).lines[0]
 

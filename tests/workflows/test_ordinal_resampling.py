@@ -105,7 +105,7 @@ def test_bootstrap_refuses_what_cannot_apply_to_ordinal_items():
     with pytest.raises(OptionError, match="Bollen-Stine"):
         bootstrap(ONE, data, replications=10, bollen_stine=True, workers=1)
     data["site"] = np.arange(len(data)) % 20
-    with pytest.raises(OptionError, match="not yet fitted with a sampling design"):
+    with pytest.raises(OptionError, match="the bootstrap of ordinal items does not take a sampling design yet"):
         bootstrap(ONE, data, replications=10, cluster="site", workers=1)
 
 
