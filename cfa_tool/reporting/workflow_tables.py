@@ -239,6 +239,9 @@ CONFIGURAL_NOTE = ("The configural model holds when it fits by the guide values 
                    "Bentler 1999). Change-in-fit guides are common practice: CFI falling by no more than .010 (Cheung & "
                    "Rensvold 2002), RMSEA rising by less than .015, SRMR by less than .030 for loadings and .010 after "
                    "(Chen 2007). All guides are conventions, not laws.")
+CONFIGURAL_ORDINAL_NOTE = ("The configural model holds when it fits by the guide values (CFI >= .95, RMSEA <= .06, "
+                           "SRMR <= .08; Hu & Bentler 1999; conventions, not laws). Changes in fit indices between "
+                           "steps are not shown with ordinal items (see above).")
 ADJUSTED_NOTE = (f"Ordinal items: chi-square, CFI and RMSEA come from the {FitTest.SCALE_SHIFTED.label} statistic, and "
                  f"each difference test is the {DifferenceMethod.SCALE_SHIFTED}. The adjusted statistic's "
                  f"{FitTest.SCALE_SHIFTED.correction} are estimated anew for each model, so it can fall when constraints "
@@ -278,6 +281,13 @@ def invariance_report(result) -> Report:
         else:
             steps.append([label, "its own fit", "", "", "", "", verdict])
             step_values.append([label, None, None, None, None, None, None, verdict])
+    ordinal = result.steps[0].result.method.ordinal
+    delta_columns = [("\u0394CFI", "r"), ("\u0394RMSEA", "r"), ("\u0394SRMR", "r")]
+    delta_values = ["\u0394CFI", "\u0394RMSEA", "\u0394SRMR"]
+    if ordinal:  # the adjusted indices are re-estimated for each model: their changes are not read (ADJUSTED_NOTE)
+        steps = [row[:3] + row[6:] for row in steps]
+        step_values = [row[:4] + row[7:] for row in step_values]
+        delta_columns, delta_values = [], []
     tables = [
         _table("levels", "Fit of each level", [("Level", "l"),
                                                 ("Scaled chi-square (df)" if adjusted else "Chi-square (df)", "r"),
@@ -286,18 +296,16 @@ def invariance_report(result) -> Report:
                flagged=tuple(flagged),
                values=(["Level", "Chi-square", "df", "p", "CFI", "RMSEA", "SRMR", "Admissible"], level_values)),
         _table("steps", "Each step against the one before",
-               [("Level", "l"), ("Difference (df)", "r"), ("p", "r"), ("\u0394CFI", "r"), ("\u0394RMSEA", "r"),
-                ("\u0394SRMR", "r"), ("Holds", "l")], steps,
+               [("Level", "l"), ("Difference (df)", "r"), ("p", "r"), *delta_columns, ("Holds", "l")], steps,
                "* tested after a step that did not hold: the comparison is between models already rejected."
                if any(step.conditional for step in result.steps) else None,
-               values=(["Level", "Chi-square difference", "df difference", "p", "\u0394CFI", "\u0394RMSEA", "\u0394SRMR",
-                        "Holds"], step_values)),
+               values=(["Level", "Chi-square difference", "df difference", "p", *delta_values, "Holds"], step_values)),
     ]
-    ordinal = result.steps[0].result.method.ordinal
     tests = sorted({step.result.robust.test.label for step in result.steps if step.result.robust is not None})
     scaled_note = (f"Chi-square, CFI and RMSEA of each level are the scaled statistic and robust indices "
                    f"({', '.join(tests)}), and each difference test is the scaled difference of those statistics.")
-    notes = ([ADJUSTED_NOTE if ordinal else scaled_note] if adjusted else []) + [CONFIGURAL_NOTE]
+    notes = ([ADJUSTED_NOTE if ordinal else scaled_note] if adjusted else []) + [
+        CONFIGURAL_ORDINAL_NOTE if ordinal else CONFIGURAL_NOTE]
     if result.freed:
         many = len(result.groups) > 2
         rows = [[f.level, f"{f.kind.replace('_', ' ')} {', '.join(f.variables)}", *([str(f.group)] if many else []),

@@ -120,6 +120,23 @@ def test_alpha_with_the_change_in_fit_rule_and_ordinal_change_in_fit_are_errors(
         invariance(MODEL, data, "grp", ordinal="all", decide_by="both")
 
 
+def test_ordinal_steps_show_no_changes_in_fit_indices():
+    # the adjusted indices are re-estimated for each model, so their changes are not read (and --decide-by both is
+    # refused, above): the report shows the difference tests only, and no change-in-fit guides (new-user trial)
+    from cfa_tool.reporting.reports import report_of
+
+    data = groups_data(1)
+    for item in [f"y{i}" for i in range(1, 7)]:
+        data[item] = pd.cut(data[item], [-np.inf, -0.5, 0.5, np.inf], labels=False) + 1
+    report = report_of(invariance(MODEL, data, "grp", ordinal="all"))
+    steps = next(t for t in report.tables if t.key == "steps")
+    assert steps.columns == ("Level", "Difference (df)", "p", "Holds")
+    assert all(len(row) == 4 for row in steps.rows) and all(len(row) == 5 for row in steps.values)
+    assert not any("Change-in-fit" in note or "Cheung" in note for note in report.notes)
+    continuous = report_of(invariance(MODEL, groups_data(1), "grp"))
+    assert "\u0394CFI" in next(t for t in continuous.tables if t.key == "steps").columns
+
+
 def test_no_latent_mean_for_a_factor_with_fewer_than_two_equal_items():
     # y5 0.8 higher and y6 0.8 lower in the second group: the search frees two of h's three intercepts
     data = groups_data(5, shift=(1, 4))
