@@ -17,7 +17,7 @@ from cfa_tool.reporting.diagram import path_diagram
 from cfa_tool.reporting.docx_report import report_docx
 from cfa_tool.reporting.fit_document import fit_report
 from cfa_tool.reporting.picture import svg_to_png
-from cfa_tool.reporting.fit_document import fit_tables as all_tables
+from cfa_tool.reporting.fit_document import fit_tables
 from cfa_tool.resources import resource_dir
 from tests.commands.test_cli import run
 
@@ -41,7 +41,7 @@ def test_word_report_puts_problems_first_and_numbers_every_table(heywood):
     texts = [p.text for p in document.paragraphs]
     assert texts[0] == T.NOT_ADMISSIBLE and "x9 is negative" in texts[1]  # the problems before the title
     assert texts[2] == heywood.model_name
-    expected = all_tables(heywood)
+    expected = fit_tables(heywood)
     assert len(document.tables) == len(expected)
     for k, table in enumerate(expected, start=1):
         at = texts.index(f"Table {k}")
