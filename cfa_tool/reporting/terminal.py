@@ -116,6 +116,8 @@ def render_report(report, console: Console) -> None:
     if report.paragraph:
         console.print()
         console.print(report.paragraph)
+    for figure in report.figures:  # pictures cannot be drawn here: named, where a reader finds them
+        console.print(Text(f"{figure.title}: a picture, drawn in the HTML, Markdown and Word reports", style="dim"))
     console.print()
     section = ""
     for table in report.tables:

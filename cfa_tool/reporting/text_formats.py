@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import base64
 import csv
 import io
 
@@ -89,6 +90,10 @@ def report_markdown(report) -> str:
         parts += [f"**{WARNINGS}**", ""] + [f"- {markdown_text(w)}" for w in report.warnings] + [""]
     if report.paragraph:
         parts += ["## Summary for a paper", "", markdown_text(report.paragraph), ""]
+    for figure in report.figures:  # an image of its SVG (a data address): nothing in it can run
+        data = base64.b64encode(figure.svg.encode("utf-8")).decode("ascii")
+        parts += [f"**{markdown_text(figure.title)}**", "", f"![{markdown_text(figure.title)}](data:image/svg+xml;base64,"
+                  f"{data})", ""] + ([f"*{markdown_text(figure.note)}*", ""] if figure.note else [])
     section = ""
     for table in report.tables:
         if table.section and table.section != section:
