@@ -16,6 +16,7 @@ from docx.oxml import OxmlElement
 from docx.oxml.ns import qn
 from docx.shared import Emu, Inches, Pt, RGBColor
 
+from cfa_tool.errors import printable
 from cfa_tool.reporting.column_parts import column_parts
 from cfa_tool.reporting.picture import DEFAULT_DPI, page_fit, png_converter, svg_to_png
 from cfa_tool.reporting.document import WARNINGS
@@ -62,6 +63,7 @@ def typeset(text: str, numeric: bool = False) -> str:
     """``text`` with its minus signs as U+2212 and the spaces of its intervals, of a relation to a number
     ('p = .186') and, in a numeric cell, all its spaces non-breaking, so that no line break splits a number, an
     interval or a statistic from its value."""
+    text = printable(text)  # control characters shown as escapes: XML allows none
     text = RELATION.sub(f"{NO_BREAK_SPACE}\\1{NO_BREAK_SPACE}", MINUS.sub("\u2212", text))
     if numeric:
         return text.replace(" ", NO_BREAK_SPACE)
@@ -142,7 +144,7 @@ def _caption(document, label: str, title: str, keep: bool = True) -> None:
     number.add_run(label).bold = True
     number.paragraph_format.space_after = Pt(0)
     name = document.add_paragraph()
-    name.add_run(title).italic = True
+    name.add_run(printable(title)).italic = True
     # the caption stays on the page of what it names
     number.paragraph_format.keep_with_next = True
     name.paragraph_format.keep_with_next = keep
@@ -236,12 +238,12 @@ def _document(title: str, notice) -> Document:
     style.font.size = Pt(12)
     if notice is not None:
         heading = document.add_paragraph()
-        run = heading.add_run(notice.heading)
+        run = heading.add_run(printable(notice.heading))
         run.bold = True
         run.font.color.rgb = PROBLEM_RED
         for line in notice.lines:
-            document.add_paragraph(line, style="List Bullet")
-    document.add_heading(title, level=1)
+            document.add_paragraph(printable(line), style="List Bullet")
+    document.add_heading(printable(title), level=1)
     return document
 
 
@@ -257,13 +259,13 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
     cautions."""
     document = _document(report.title, report.notice)
     for line in report.lines:
-        document.add_paragraph(line)
+        document.add_paragraph(printable(line))
     if report.warnings:
         heading = document.add_paragraph()
         heading.add_run(WARNINGS).bold = True
         heading.paragraph_format.keep_with_next = True
         for line in report.warnings:
-            document.add_paragraph(line, style="List Bullet")
+            document.add_paragraph(printable(line), style="List Bullet")
     if report.paragraph:
         document.add_heading("Method and results", level=2)
         document.add_paragraph(typeset(report.paragraph))
@@ -283,24 +285,24 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
     for number, table in enumerate(report.tables, start=1):
         if table.section and table.section != section:
             _set_orientation(document, wide(table))
-            document.add_heading(table.section, level=2).paragraph_format.keep_with_next = True
+            document.add_heading(printable(table.section), level=2).paragraph_format.keep_with_next = True
         section = table.section
         _add_table(document, table, number)
     _set_orientation(document, landscape=False)
     for listing in report.listings:
-        document.add_heading(listing.title, level=2)
+        document.add_heading(printable(listing.title), level=2)
         for line in listing.text.splitlines():
             paragraph = document.add_paragraph()
             paragraph.paragraph_format.space_after = Pt(0)
-            run = paragraph.add_run(line)
+            run = paragraph.add_run(printable(line))  # control characters shown as escapes (XML allows none)
             run.font.name = "Courier New"
             run.font.size = Pt(10)
     if report.notes:
         document.add_heading("Notes", level=2)
         for line in report.notes:
-            document.add_paragraph(line, style="List Bullet")
+            document.add_paragraph(printable(line), style="List Bullet")
     if report.cautions:
         document.add_heading("Cautions", level=2)
         for line in report.cautions:
-            document.add_paragraph(line)
+            document.add_paragraph(printable(line))
     return _saved(document)

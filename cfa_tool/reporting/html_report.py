@@ -91,7 +91,8 @@ def report_html_fragment(report, heading: bool = False) -> str:
         section = table.section
         parts.append(table_html(table))
     for listing in report.listings:
-        parts += [f"<h2>{esc(listing.title)}</h2>", f"<pre>{esc(listing.text)}</pre>"]
+        lines = "\n".join(esc(line) for line in listing.text.split("\n"))  # its line breaks kept, other controls shown
+        parts += [f"<h2>{esc(listing.title)}</h2>", f"<pre>{lines}</pre>"]
     if report.notes:
         parts.append('<ul class="warnings">' + "".join(f"<li>{esc(w)}</li>" for w in report.notes) + "</ul>")
     parts += [f'<p class="caution">{esc(c)}</p>' for c in report.cautions]

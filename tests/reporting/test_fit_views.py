@@ -200,3 +200,15 @@ def test_report_writes_the_files_alone_and_the_terminal_view_when_none_is_asked(
     assert shown.returncode == 0 and "Model fit" in shown.stdout
     written = run("report", str(saved), "--html", str(tmp_path / "again.html"))
     assert written.returncode == 0 and written.stdout.strip() == f"HTML report written to {tmp_path / 'again.html'}"
+
+
+def test_control_characters_in_a_model_are_shown_as_escapes_in_every_view(hs_data):
+    # a name and a comment holding an escape and a bell: Word's XML allows no control character (python-docx
+    # refuses one), and a terminal would act on it
+    result = cfa_tool.fit('name "a\x1bb"\n# note \x07 bell\nfactor visual: x1, x2, x3\nfactor textual: x4, x5, x6\n',
+                          hs_data)
+    report = fit_report(result)
+    word = _word_text(report_docx(report, 72))
+    for text in (result.summary(), report_html(report), report_markdown(report), word):
+        assert "\x1b" not in text and "\x07" not in text
+        assert "x1bb" in text and "x07 bell" in text
