@@ -193,7 +193,7 @@ def inputs_of(args: argparse.Namespace) -> list[str]:
 def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     """Every output of the run checked before any work (see cfa_tool.output_files): the checks of
     :func:`check_files`, and those of the diagram, simulated rows and picture resolution."""
-    from cfa_tool.reporting.picture import picture_format, png_converter, require_converter
+    from cfa_tool.reporting.picture import PictureFormat, picture_format, png_converter, require_converter
 
     diagram = getattr(args, "diagram", None)
     if diagram:  # the format checked, and a missing converter said, before any work
@@ -205,10 +205,10 @@ def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
         from cfa_tool.output_files import check_new_file
 
         targets["--output"] = check_new_file(targets["--output"])
-    if getattr(args, "dpi", None) is not None:
-        from cfa_tool import options as check
-
-        args.dpi = check.whole_number("--dpi", args.dpi, 72, 1200)
+    if hasattr(args, "dpi"):
+        pictures = bool(getattr(args, "docx", None)) or (bool(diagram) and picture_format("--diagram", diagram)
+                                                           is PictureFormat.PNG)
+        picture_resolution(args, pictures, "give --diagram FILE.png or --docx, or leave --dpi out")
     if getattr(args, "docx", None) and args.command in ("fit", "demo") and png_converter() is None:  # said before the work
         from cfa_tool.reporting.docx_report import NO_PICTURE
 
@@ -216,68 +216,32 @@ def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     return targets
 
 
-def emit(args: argparse.Namespace, result, render=None) -> int:
-    """Make every output, check that each can be written, then show the report and write them (every result but
-    a fit, which has its own ``render``: the one report model, see commands.common.emit_report)."""
-    if render is None:
-        from cfa_tool.commands.common import emit_report
+def picture_resolution(args: argparse.Namespace, pictures: bool, advice: str) -> None:
+    """``args.dpi`` checked (a whole number from 72 to 1200; the default when not given): given for a run that
+    writes no picture (``pictures`` false), it cannot apply, an error with the ``advice``."""
+    from cfa_tool import options as check
+    from cfa_tool.reporting.picture import DEFAULT_DPI
 
-        return emit_report(args, result, inputs_of(args))
-    from cfa_tool.output_files import check_table_folder, write_file, write_table_folder
-
-    files = fit_report_files(args, result)
-    tables = fit_table_files(args, result)
-    if tables:
-        check_table_folder("--tables", args.tables, tables, inputs_of(args))
-    if not args._stdout_taken:  # otherwise standard output carries that output alone
-        render(result, console())
-    for option, content, message in files:
-        write_file(args._targets[option], content)
-        if not args._targets[option].is_stdout:
-            say(args, message)
-    if tables:
-        write_table_folder("--tables", args.tables, tables, inputs_of(args))
-        say(args, f"Tables written to {args.tables}/ as CSV and LaTeX")
-    return 0
+    if args.dpi is None:
+        args.dpi = DEFAULT_DPI
+        return
+    args.dpi = check.whole_number("--dpi", args.dpi, 72, 1200)
+    if not pictures:
+        raise OptionError(f"--dpi sets the resolution of pictures, and this run writes none: {advice}")
 
 
-def fit_report_files(args: argparse.Namespace, result) -> list[tuple[str, object, str]]:
-    """(option, content, message) of every report file asked for, made before anything is written."""
-    files: list[tuple[str, object, str]] = []
-    if getattr(args, "json", None):
-        from cfa_tool.reporting.json_report import to_json
-
-        files.append(("--json", to_json(result), f"JSON result written to {args.json}"))
-    if getattr(args, "html", None):
-        from cfa_tool.reporting.html_report import html_report
-
-        files.append(("--html", html_report(result), f"HTML report written to {args.html}"))
-    if getattr(args, "markdown", None):
-        from cfa_tool.reporting.text_formats import markdown_report
-
-        files.append(("--markdown", markdown_report(result), f"Markdown report written to {args.markdown}"))
-    if getattr(args, "docx", None):
-        from cfa_tool.reporting.docx_report import docx_report
-
-        files.append(("--docx", docx_report(result, args.dpi), f"Word report written to {args.docx}"))
-    if getattr(args, "diagram", None):
-        from cfa_tool.reporting.diagram import diagram_file
-        from cfa_tool.reporting.picture import picture, picture_format
-
-        content = picture(diagram_file(result), picture_format("--diagram", args.diagram), args.dpi)
-        files.append(("--diagram", content, f"Path diagram written to {args.diagram}"))
-    return files
+def emit(args: argparse.Namespace, result, first: list[tuple[str, object, str]] = ()) -> int:
+    """Make every output of ``result``'s report, check that each can be written, then show the report and write
+    them (see :func:`emit_report`)."""
+    return emit_report(args, result, inputs_of(args), first)
 
 
-def fit_table_files(args: argparse.Namespace, result) -> dict[str, str]:
-    if not getattr(args, "tables", None):
-        return {}
-    from cfa_tool.reporting import tables as T
-    from cfa_tool.reporting.text_formats import all_tables, csv_table, latex_table
+def diagram_files(args: argparse.Namespace, result) -> list[tuple[str, object, str]]:
+    """(option, content, message) of a fit's path diagram file when --diagram asks for one."""
+    if not getattr(args, "diagram", None):
+        return []
+    from cfa_tool.reporting.diagram import diagram_file
+    from cfa_tool.reporting.picture import picture, picture_format
 
-    files = {}
-    problems = T.problem_table(result) if hasattr(result, "problems") else None
-    for table in ([problems] if problems is not None else []) + all_tables(result):
-        files[f"{table.key}.csv"] = csv_table(table)
-        files[f"{table.key}.tex"] = latex_table(table)
-    return files
+    content = picture(diagram_file(result), picture_format("--diagram", args.diagram), args.dpi)
+    return [("--diagram", content, f"Path diagram written to {args.diagram}")]

@@ -6,7 +6,7 @@ import argparse
 from pathlib import Path
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import add_report_options, check_output, emit, inputs_of
+from cfa_tool.commands.common import add_report_options, check_output, diagram_files, emit, inputs_of
 from cfa_tool.method import Information
 
 
@@ -27,7 +27,8 @@ def add_fit_outputs(p: argparse.ArgumentParser) -> None:
     add_report_options(p)  # JSON, HTML, Markdown, Word and tables, as every command has them
     p.add_argument("--diagram", metavar="PATH", help="write the path diagram (every group) as SVG, or as PNG "
                    "or PDF when PATH ends in .png or .pdf (needs the rsvg-convert program)")
-    p.add_argument("--dpi", type=int, default=300, help="resolution of pictures (PNG diagram, Word figure; default 300)")
+    p.add_argument("--dpi", type=int, default=None, help="resolution of pictures (PNG diagram, Word figure; default "
+                                                         "300); only with --diagram FILE.png or --docx")
     p.add_argument("--standard-errors-from", dest="information", choices=Information.words(), default=None,
                    help="'expected' or 'observed' information (the curvature of the likelihood the standard errors come "
                         "from; default: expected with complete rows, observed with full-information ML); --robust gives "
@@ -45,7 +46,6 @@ def add_fit_outputs(p: argparse.ArgumentParser) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from cfa_tool.pipeline.inputs import fit
-    from cfa_tool.reporting.terminal import render
 
     check_output(args, inputs_of(args))
     # a model file is a path, never model text (cfa_tool.pipeline.inputs.load_spec reads a Path as a file)
@@ -54,4 +54,4 @@ def run(args: argparse.Namespace) -> int:
                  mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations,
                  test=O.fit_test(args), missing=args.missing, ordinal=O.ordinal_arg(args.ordinal),
                  ordinal_estimator=args.ordinal_estimator, id_column=getattr(args, "id", None), **O.design_args(args))
-    return emit(args, result, render)  # a model that does not converge raises EstimationError (exit 3)
+    return emit(args, result, diagram_files(args, result))  # a model that does not converge raises EstimationError (exit 3)

@@ -5,8 +5,8 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.commands.common import add_report_options, check_files, console, document_files, table_files, \
-    write_reports, write_tables
+from cfa_tool.commands.common import add_report_options, check_files, console, document_files, picture_resolution, \
+    table_files, write_reports, write_tables
 
 
 def add_parser(sub) -> None:
@@ -14,7 +14,8 @@ def add_parser(sub) -> None:
                                       "tables, without fitting again")
     p.add_argument("result", metavar="RESULT", help="JSON file written by a command's --json option")
     add_report_options(p, json=False)
-    p.add_argument("--dpi", type=int, default=300, help="resolution of pictures in the Word document (default 300)")
+    p.add_argument("--dpi", type=int, default=None, help="resolution of pictures in the Word document (default 300); "
+                                                         "only with --docx, for a result with pictures")
 
 
 def read_result(path: str) -> dict:
@@ -42,14 +43,14 @@ def read_result(path: str) -> dict:
 
 
 def run(args: argparse.Namespace) -> int:
-    from cfa_tool import options as check
     from cfa_tool.output_files import shown
     from cfa_tool.reporting.reports import saved_report
     from cfa_tool.reporting.terminal import render_report
 
-    args.dpi = check.whole_number("--dpi", args.dpi, 72, 1200)
     check_files(args, [], [args.result])  # never the result file itself, never a file the run did not create
     report = saved_report(read_result(args.result), shown(args.result))
+    picture_resolution(args, bool(args.docx) and bool(report.figures), "give --docx, or leave --dpi out"
+                       if report.figures else "this result has none to draw; leave --dpi out")
     if args.docx and report.figures:
         from cfa_tool.reporting.picture import png_converter
 
@@ -61,7 +62,7 @@ def run(args: argparse.Namespace) -> int:
             print(f"cfa-tool: note: {NO_PICTURE}", file=sys.stderr)
     files = document_files(args, report, args.dpi)
     tables = table_files(args, report, [args.result])
-    if not args._stdout_taken:
+    if not (files or tables or args._stdout_taken):  # its work is the files: the terminal view only when none is asked for
         render_report(report, console())
     write_reports(args, files)
     write_tables(args, tables, [args.result])

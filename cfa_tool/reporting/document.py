@@ -11,6 +11,9 @@ from dataclasses import dataclass
 from cfa_tool.reporting.tables import ProblemNotice, ReportTable
 
 
+WARNINGS = "Notes and warnings on the data and the estimation"  # the heading of a report's warnings in every view
+
+
 class ResultKind(enum.Enum):
     """Which command made a result (written into its JSON as "command")."""
 
@@ -39,7 +42,19 @@ class Figure:
 
 
 @dataclass(frozen=True)
+class Listing:
+    """Text shown as written (the model file), with its title."""
+
+    title: str
+    text: str
+
+
+@dataclass(frozen=True)
 class Report:
+    """Every view draws, in this order: the notice, the title, the lines, the warnings, the paragraph, the
+    figures, the tables (a table's ``section`` heading shown where the section changes), the listings, the notes
+    and the cautions."""
+
     kind: ResultKind
     title: str
     notice: ProblemNotice | None  # problems of a solution: first in every view
@@ -52,6 +67,9 @@ class Report:
     # the problems as a table for data files, when the solution's problems have more to say than the notice's
     # lines (parameters, values, advice)
     problem_table: ReportTable | None = None
+    # cautions about the data and the estimation (rows left out, codes read as missing): right under the lines
+    warnings: tuple[str, ...] = ()
+    listings: tuple[Listing, ...] = ()
 
     def to_dict(self) -> dict:
         notice = None if self.notice is None else {"heading": self.notice.heading, "lines": list(self.notice.lines),
@@ -60,7 +78,8 @@ class Report:
                 "tables": [t.to_dict() for t in self.tables], "notes": list(self.notes), "cautions": list(self.cautions),
                 "paragraph": self.paragraph, "figures": [{"title": f.title, "svg": f.svg, "note": f.note}
                                                          for f in self.figures],
-                "problem_table": None if self.problem_table is None else self.problem_table.to_dict()}
+                "problem_table": None if self.problem_table is None else self.problem_table.to_dict(),
+                "warnings": list(self.warnings), "listings": [{"title": x.title, "text": x.text} for x in self.listings]}
 
     @classmethod
     def from_dict(cls, d: dict) -> "Report":
@@ -71,4 +90,6 @@ class Report:
                    tuple(ReportTable.from_dict(t) for t in d["tables"]), tuple(map(str, d.get("notes", ()))),
                    tuple(map(str, d.get("cautions", ()))), d.get("paragraph"),
                    tuple(Figure(str(f["title"]), str(f["svg"]), str(f.get("note", ""))) for f in d.get("figures", ())),
-                   None if d.get("problem_table") is None else ReportTable.from_dict(d["problem_table"]))
+                   None if d.get("problem_table") is None else ReportTable.from_dict(d["problem_table"]),
+                   tuple(map(str, d.get("warnings", ()))),
+                   tuple(Listing(str(x["title"]), str(x["text"])) for x in d.get("listings", ())))

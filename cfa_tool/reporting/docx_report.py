@@ -16,13 +16,11 @@ from docx.oxml import OxmlElement
 from docx.oxml.ns import qn
 from docx.shared import Emu, Inches, Pt, RGBColor
 
-from cfa_tool.reporting import tables as T
+from cfa_tool.errors import printable
 from cfa_tool.reporting.column_parts import column_parts
-from cfa_tool.reporting.diagram import legend_text, path_diagram
-from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.picture import DEFAULT_DPI, page_fit, png_converter, svg_to_png
-from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
-from cfa_tool.reporting.text_formats import all_tables
+from cfa_tool.reporting.document import WARNINGS
+from cfa_tool.reporting.tables import ReportTable
 
 FAINT_GREY = RGBColor(0x99, 0x99, 0x99)
 PROBLEM_RED = RGBColor(0xB3, 0x26, 0x1E)
@@ -65,6 +63,7 @@ def typeset(text: str, numeric: bool = False) -> str:
     """``text`` with its minus signs as U+2212 and the spaces of its intervals, of a relation to a number
     ('p = .186') and, in a numeric cell, all its spaces non-breaking, so that no line break splits a number, an
     interval or a statistic from its value."""
+    text = printable(text)  # control characters shown as escapes: XML allows none
     text = RELATION.sub(f"{NO_BREAK_SPACE}\\1{NO_BREAK_SPACE}", MINUS.sub("\u2212", text))
     if numeric:
         return text.replace(" ", NO_BREAK_SPACE)
@@ -145,7 +144,7 @@ def _caption(document, label: str, title: str, keep: bool = True) -> None:
     number.add_run(label).bold = True
     number.paragraph_format.space_after = Pt(0)
     name = document.add_paragraph()
-    name.add_run(title).italic = True
+    name.add_run(printable(title)).italic = True
     # the caption stays on the page of what it names
     number.paragraph_format.keep_with_next = True
     name.paragraph_format.keep_with_next = keep
@@ -232,18 +231,19 @@ def _add_table(document, table: ReportTable, number: int) -> None:
 
 
 def _document(title: str, notice) -> Document:
+    """A document with the problems first, then the title."""
     document = Document()
     style = document.styles["Normal"]
     style.font.name = FONT
     style.font.size = Pt(12)
-    document.add_heading(title, level=1)
-    if notice is not None:  # problems first
+    if notice is not None:
         heading = document.add_paragraph()
-        run = heading.add_run(notice.heading)
+        run = heading.add_run(printable(notice.heading))
         run.bold = True
         run.font.color.rgb = PROBLEM_RED
         for line in notice.lines:
-            document.add_paragraph(line, style="List Bullet")
+            document.add_paragraph(printable(line), style="List Bullet")
+    document.add_heading(printable(title), level=1)
     return document
 
 
@@ -259,13 +259,16 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
     cautions."""
     document = _document(report.title, report.notice)
     for line in report.lines:
-        document.add_paragraph(line)
+        document.add_paragraph(printable(line))
+    if report.warnings:
+        heading = document.add_paragraph()
+        heading.add_run(WARNINGS).bold = True
+        heading.paragraph_format.keep_with_next = True
+        for line in report.warnings:
+            document.add_paragraph(printable(line), style="List Bullet")
     if report.paragraph:
         document.add_heading("Method and results", level=2)
         document.add_paragraph(typeset(report.paragraph))
-    for number, table in enumerate(report.tables, start=1):
-        _add_table(document, table, number)
-    _set_orientation(document, landscape=False)
     if report.figures:
         document.add_heading("Figures", level=2)
         if png_converter() is None:
@@ -273,46 +276,33 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
         else:
             for number, figure in enumerate(report.figures, start=1):
                 _caption(document, f"Figure {number}", figure.title)
-                document.add_picture(io.BytesIO(svg_to_png(figure.svg, dpi)), width=Inches(6.5))
+                png = svg_to_png(figure.svg, dpi)
+                side, inches = page_fit(png)
+                document.add_picture(io.BytesIO(png), **{side: Inches(inches)})
                 if figure.note:
                     _note(document, figure.note)
+    section = ""
+    for number, table in enumerate(report.tables, start=1):
+        if table.section and table.section != section:
+            _set_orientation(document, wide(table))
+            document.add_heading(printable(table.section), level=2).paragraph_format.keep_with_next = True
+        section = table.section
+        _add_table(document, table, number)
+    _set_orientation(document, landscape=False)
+    for listing in report.listings:
+        document.add_heading(printable(listing.title), level=2)
+        for line in listing.text.splitlines():
+            paragraph = document.add_paragraph()
+            paragraph.paragraph_format.space_after = Pt(0)
+            run = paragraph.add_run(printable(line))  # control characters shown as escapes (XML allows none)
+            run.font.name = "Courier New"
+            run.font.size = Pt(10)
     if report.notes:
         document.add_heading("Notes", level=2)
         for line in report.notes:
-            document.add_paragraph(line, style="List Bullet")
+            document.add_paragraph(printable(line), style="List Bullet")
     if report.cautions:
         document.add_heading("Cautions", level=2)
         for line in report.cautions:
-            document.add_paragraph(line)
-    return _saved(document)
-
-
-def docx_report(result, dpi: int = DEFAULT_DPI) -> bytes:
-    """The fit ``result`` as a .docx file's bytes."""
-    notice = T.problem_notice(result)
-    document = _document(result.model_name, notice)
-    d = result.data
-    document.add_paragraph(f"Data: {d.source}; {T.rows_phrase(d)}. "
-                            f"{T.status_line(result)}.")
-    document.add_heading("Method and results", level=2)
-    document.add_paragraph(typeset(methods_paragraph(result)))
-    number = 0
-    for table in all_tables(result):
-        number += 1
-        _add_table(document, table, number)
-    _set_orientation(document, landscape=False)
-    document.add_heading("Path diagram", level=2)
-    if png_converter() is None:
-        document.add_paragraph(NO_PICTURE)
-    else:
-        for g, group in enumerate(result.groups):
-            where = "" if group.label is None else f", group {group.label}"
-            _caption(document, f"Figure {g + 1}", f"Path diagram of the fitted model{where} (standardized values)")
-            png = svg_to_png(path_diagram(result, g), dpi)
-            side, inches = page_fit(png)
-            document.add_picture(io.BytesIO(png), **{side: Inches(inches)})
-            _note(document, legend_text(result) + (" Elements in red show a problem of the solution." if notice is not None else ""))
-    document.add_heading("Cautions", level=2)
-    document.add_paragraph(GUIDE_NOTE)
-    document.add_paragraph(HIGH_STAKES_NOTE)
+            document.add_paragraph(printable(line))
     return _saved(document)

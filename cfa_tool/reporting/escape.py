@@ -24,7 +24,7 @@ def markdown_text(value) -> str:
     """Backslash-escape the Markdown punctuation that would change the text's meaning; angle brackets
     become entities so no HTML passes through; a '#', '+', '-' or '>' at the start cannot make a heading
     or a list."""
-    text = " ".join(str(value).splitlines())
+    text = printable(" ".join(str(value).splitlines()))  # other control characters shown as escapes
     text = _MARKDOWN_SPECIAL.sub(r"\\\1", text)
     text = re.sub(r"<(?=[A-Za-z/!?])", "&lt;", text)  # only what could open an HTML tag ("p < .05" stays)
     if text[:1] in ("#", "+", "-", "=", ">"):
@@ -44,4 +44,4 @@ _LATEX = {
 
 
 def latex_text(value) -> str:
-    return "".join(_LATEX.get(ch, ch) for ch in str(value).replace("\n", " "))
+    return "".join(_LATEX.get(ch, ch) for ch in printable(str(value).replace("\n", " ")))

@@ -297,7 +297,7 @@ def explore_html_fragment(result) -> str:
 
 def explore_html_report(result) -> str:
     from cfa_tool.version import __version__
-    from cfa_tool.reporting.html_report import CSS, problem_banner, table_html
+    from cfa_tool.reporting.html_report import CSS, notice_html, table_html
 
     fragment = explore_html_fragment(result)
     banner_end = fragment.index("</div>") + len("</div>") if fragment.startswith('<div class="problems"') else 0
@@ -307,7 +307,7 @@ def explore_html_report(result) -> str:
     confirmation = result.split.confirmation if result.split is not None else None
     if confirmation is not None:
         sections.append("<h2>Confirmation half: the draft model fitted</h2>")
-        sections.append(problem_banner(confirmation))
+        sections.append(notice_html(T.problem_notice(confirmation)))
         sections += [table_html(t) for t in confirmation_tables(result)]
     if result.notes:
         sections.append("<h2>Notes</h2>")

@@ -1,29 +1,68 @@
-"""The report of a fit as the one report model (:class:`~cfa_tool.reporting.document.Report`): what a saved
-fit result carries so that ``cfa-tool report`` can write any format later."""
+"""The report of a fit as the one report model (:class:`~cfa_tool.reporting.document.Report`): the source of
+every view of a fit (terminal, notebook, HTML, Markdown, Word, CSV and LaTeX tables) and what a saved fit
+result carries so that ``cfa-tool report`` can write any format later."""
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from cfa_tool.reporting import tables as T
-from cfa_tool.reporting.diagram import LEGEND, path_diagram
-from cfa_tool.reporting.document import Figure, Report, ResultKind
+from cfa_tool.reporting.diagram import BLOCK_LEGEND, legend_text, path_diagram
+from cfa_tool.reporting.document import Figure, Listing, Report, ResultKind
 from cfa_tool.reporting.paragraph import methods_paragraph
-from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE
-from cfa_tool.reporting.text_formats import all_tables
+from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable
+
+NOT_CONVERGED = "The estimation did not converge: nothing in this report is a result."
+
+
+def _in(section: str, tables) -> list[ReportTable]:
+    return [replace(t, section=section) for t in tables if t is not None]
+
+
+def fit_tables(result) -> list[ReportTable]:
+    """Every table of a fit in the order of every view, each with the heading of its section: the missing answers
+    (a caution about the data, first), the fit (with the normality tests and the local fit in its note), the
+    estimates of each group, the local fit, the modification indices and the data."""
+    out = _in("", [T.missing_table(result)])  # a caution about the data: before the results
+    if result.fit is not None and result.converged:
+        fit = T.fit_table(result)
+        extra = [*T.normality_lines(result), T.local_fit_line(result)]
+        fit = replace(fit, note=" ".join([fit.note or "", *(line for line in extra if line)]).strip())
+        out += _in("Fit", [fit, T.group_table(result) if result.multigroup else None])
+    for g, group in enumerate(result.groups):
+        heading = "Estimates" + (f", group {group.label} (N = {group.data.n_obs})" if result.multigroup else "")
+        out += _in(heading, [*T.estimate_tables(result, g), T.reliability_table(result, g),
+                             T.sum_score_table(result, g), T.distinct_table(result, g), T.case_table(result, g)])
+    for g, group in enumerate(result.groups):
+        heading = "Local fit" + (f", group {group.label}" if result.multigroup else "")
+        out += _in(heading, [T.residual_table(result, g)])
+    out += _in("Modification indices", [T.modification_table(result)])
+    data = [T.item_table(result)]
+    for g in range(len(result.groups)):
+        data += [T.category_table(result, g), T.correlation_table(result, g)]
+    out += _in("Data", data + T.label_tables(result))
+    return out
+
+
+def _figure_note(result) -> str:
+    note = legend_text(result)
+    if getattr(result, "exploratory", ()):
+        note += " " + BLOCK_LEGEND
+    if result.problems:
+        note += " Elements in red show a problem of the solution."
+    return note
 
 
 def fit_report(result) -> Report:
+    """The report of the fit ``result``: the problems first; the model, the data and the estimation, with the
+    cautions about the data right under them; the methods paragraph, the path diagrams, the tables, the model
+    as written and the cautions."""
     d = result.data
-    lines = (f"Model file: {result.model_source}", f"Data: {d.source}; {T.rows_phrase(d)}",
-             T.status_line(result))
-    notes = list(T.normality_lines(result))
-    local = T.local_fit_line(result)
-    if local:
-        notes.append(local)
-    notes += list(result.warnings)
+    lines = (f"Model file: {result.model_source}", f"Data: {d.source}; {T.rows_phrase(d)}", T.status_line(result))
+    warnings = tuple(result.warnings) + (() if result.converged else (NOT_CONVERGED,))
     figures = tuple(Figure("Path diagram of the fitted model" + ("" if g.label is None else f", group {g.label}")
-                           + " (standardized values)", path_diagram(result, k),
-                           LEGEND + (" Elements in red show a problem of the solution." if result.problems else ""))
+                           + " (standardized values)", path_diagram(result, k), _figure_note(result))
                     for k, g in enumerate(result.groups))
-    return Report(ResultKind.FIT, result.model_name, T.problem_notice(result), lines, tuple(all_tables(result)),
-                  tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), methods_paragraph(result), figures,
-                  T.problem_table(result))
+    return Report(ResultKind.FIT, result.model_name, T.problem_notice(result), lines, tuple(fit_tables(result)),
+                  (), (HIGH_STAKES_NOTE,), methods_paragraph(result), figures, T.problem_table(result), warnings,
+                  (Listing("Model", result.model_text),))

@@ -1,6 +1,7 @@
-"""What a researcher can do next, said once in two ways: in words, as a manuscript reads it (Word, HTML,
-Markdown), and with the command-line option that does it after the words, as the terminal shows it.  A report
-that gives advice names a :class:`Remedy`; the view decides whether the option is shown."""
+"""What a researcher can do next, said once: in words, with the command-line option that does it after them.
+Every view of a report shows the same advice (its reader is the researcher who runs the command); the methods
+paragraph, written for a paper, gives no advice and names no option.  A report that gives advice names a
+:class:`Remedy`."""
 
 from __future__ import annotations
 
@@ -17,6 +18,6 @@ class Remedy(enum.Enum):
         self.words = words
         self.option = option
 
-    def said(self, options: bool) -> str:
-        """The words, followed by the option in parentheses when ``options`` (the terminal)."""
-        return f"{self.words} ({self.option})" if options else self.words
+    def said(self) -> str:
+        """The words, followed by the option in parentheses."""
+        return f"{self.words} ({self.option})"

@@ -49,6 +49,8 @@ class ReportTable:
     value_columns: tuple[str, ...] | None = None
     values: tuple[tuple, ...] | None = None
     faint: tuple[tuple[int, int], ...] = ()  # (row, column) cells shown faintly (e.g. small loadings)
+    section: str = ""  # the heading of the part of the report the table opens or continues ('' for none)
+    heat: bool = False  # numeric cells shaded by sign and size where a view can colour them (HTML)
 
     def to_dict(self) -> dict:
         """The table as JSON holds it (a saved result carries its report: see reporting.document)."""
@@ -56,7 +58,7 @@ class ReportTable:
                 "rows": [list(r) for r in self.rows], "note": self.note, "flagged": list(self.flagged),
                 "value_columns": None if self.value_columns is None else list(self.value_columns),
                 "values": None if self.values is None else [[_plain(v) for v in row] for row in self.values],
-                "faint": [list(f) for f in self.faint]}
+                "faint": [list(f) for f in self.faint], "section": self.section, "heat": self.heat}
 
     @classmethod
     def from_dict(cls, d: dict) -> "ReportTable":
@@ -66,7 +68,8 @@ class ReportTable:
                     tuple(tuple(map(str, r)) for r in d["rows"]), d.get("note"), tuple(map(int, d.get("flagged", ()))),
                     None if d.get("value_columns") is None else tuple(map(str, d["value_columns"])),
                     None if d.get("values") is None else tuple(tuple(r) for r in d["values"]),
-                    tuple((int(i), int(j)) for i, j in d.get("faint", ())))
+                    tuple((int(i), int(j)) for i, j in d.get("faint", ())), str(d.get("section", "")),
+                    bool(d.get("heat", False)))
         width = len(table.columns)
         if (not width or len(table.align) != width or any(a not in ("l", "r") for a in table.align)
                 or any(len(r) != width for r in table.rows)
@@ -421,8 +424,10 @@ def residual_table(result, group: int = 0) -> ReportTable | None:
     r = result.groups[group].residual_correlations
     rows = [[f"{i + 1} {name}"] + [unit(r[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
             for i, name in enumerate(names) if i > 0]
-    return _table(f"residuals_{group}", "Residual correlations (sample minus model)",
-                  [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows)
+    table = _table(f"residuals_{group}", "Residual correlations (sample minus model)",
+                   [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows,
+                   "Positive: the model underestimates the correlation of the two items; negative: it overestimates it.")
+    return replace(table, heat=True)
 
 
 def group_table(result) -> ReportTable:
@@ -465,6 +470,8 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
         note += (f" {len(beyond)} expected residual correlation{'s are' if len(beyond) > 1 else ' is'} beyond +/-1: the "
                  "expected change is a linear approximation that fails this far from the current estimate, so only a "
                  "refit shows the value the parameter would take.")
+    note += (" Freeing parameters because of large modification indices capitalises on chance; a model changed that "
+             "way needs confirmation in new data.")
     values = [[m.kind, ", ".join(m.variables), m.group or "", m.index, m.expected_change, m.standardized_expected_change]
               for m in shown]
     return _table("modification", title, [("Parameter that could be freed", "l"), ("Index", "r"), ("Expected change", "r"),
@@ -680,6 +687,22 @@ def category_table(result, group: int = 0) -> ReportTable | None:
                   values=(["Item"] + [f"Category {k + 1} rows" for k in range(width)], values))
 
 
+def label_tables(result) -> list[ReportTable]:
+    """The labels the data file gives its variables and their values (SPSS and Stata files)."""
+    labels = result.labels or {}
+    out = []
+    names = labels.get("variables", {})
+    if names:
+        out.append(_table("variable_labels", "Labels of the variables (from the data file)",
+                          [("Variable", "l"), ("Label", "l")], [[k, v] for k, v in names.items()]))
+    values = labels.get("values", {})
+    if values:
+        rows = [[k, "; ".join(f"{code:g} = {text}" for code, text in v.items())] for k, v in values.items()]
+        out.append(_table("value_labels", "Labels of the values (from the data file)",
+                          [("Variable", "l"), ("Codes", "l")], rows))
+    return out
+
+
 def rows_phrase(data) -> str:
     """For the data line: the rows analysed, of the rows read or of those the row filters kept (then with the
     filters and the rows in the file), and the rows per pair of items when pairs used different rows."""
@@ -731,9 +754,8 @@ def correlation_table(result, group: int = 0) -> ReportTable | None:
                   [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows, " ".join(said) or None)
 
 
-def normality_lines(result, options: bool = False) -> list[str]:
-    """The multivariate normality tests (or why there are none), with the remedy in words; with ``options``
-    (the terminal) the command-line option follows the words."""
+def normality_lines(result) -> list[str]:
+    """The multivariate normality tests (or why there are none), with the remedy in words and its option."""
     lines = []
     for g in result.groups:
         n = g.normality
@@ -744,7 +766,7 @@ def normality_lines(result, options: bool = False) -> list[str]:
                 f"on {n.skewness_df} df, p {p_phrase(n.skewness_p_value)}; kurtosis {n.kurtosis:.3f} "
                 f"(normal: {n.kurtosis_expected:g}), z = {n.kurtosis_z:.2f}, p {p_phrase(n.kurtosis_p_value)}.")
         if (n.skewness_p_value < 0.05 or n.kurtosis_p_value < 0.05) and result.robust is None:
-            line += f" The data depart from normality: consider {Remedy.ROBUST.said(options)}."
+            line += f" The data depart from normality: consider {Remedy.ROBUST.said()}."
         design = getattr(result, "design", None)
         if design is not None and design.columns.weights is not None:
             line += " These tests describe the rows as they are, unweighted."
@@ -753,8 +775,8 @@ def normality_lines(result, options: bool = False) -> list[str]:
         # said, not silently left out: both need every row complete
         lines.append("Mardia's tests of multivariate normality and the table of rows that contribute most to the "
                      "chi-square need complete rows, so with full-information ML they are not computed; "
-                     f"{Remedy.COMPLETE_ROWS.said(options)} gives them for those rows, and "
-                     f"{Remedy.ROBUST.said(options)} guard the test and the standard errors against non-normal "
+                     f"{Remedy.COMPLETE_ROWS.said()} gives them for those rows, and "
+                     f"{Remedy.ROBUST.said()} guard the test and the standard errors against non-normal "
                      "answers either way.")
     return lines
 

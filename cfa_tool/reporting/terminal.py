@@ -13,9 +13,10 @@ from rich.text import Text
 from cfa_tool.errors import printable
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.column_parts import column_parts
-from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
+from cfa_tool.reporting.document import WARNINGS
+from cfa_tool.reporting.tables import ReportTable
 
-__all__ = ["GUIDE_NOTE", "HIGH_STAKES_NOTE", "SafeConsole", "render", "render_text", "rich_table"]
+__all__ = ["SafeConsole", "render_report", "report_text", "rich_table"]
 
 
 class SafeConsole(Console):
@@ -48,7 +49,7 @@ def rich_table(report: ReportTable) -> Group:
     wider than the terminal is shown in parts of whole columns, each with the first column again: a number is
     never broken across lines (a residual '-.02' printed as '-.0' above '2' reads as another number)."""
     parts = [Text(printable(report.title), style="bold"), _ColumnParts(report)]  # (Text is not escaped otherwise)
-    if report.note and report.key not in ("fit",):
+    if report.note:
         parts += [Text(printable(report.note, keep_newlines=True), style="dim"), Text("")]
     return Group(*parts)
 
@@ -83,65 +84,21 @@ class _ColumnParts:
         return table
 
 
+def _bullets(lines) -> Table:
+    """Lines as a list, each wrapped under its own first word (not under the dash)."""
+    grid = Table.grid(padding=(0, 1))
+    grid.add_column(no_wrap=True)
+    grid.add_column(overflow="fold")
+    for line in lines:
+        grid.add_row("  -", Text(printable(line)))
+    return grid
+
+
 def problem_panel(notice: T.ProblemNotice) -> Panel:
     """The boxed problems section that comes before any table."""
     body = Text("\n".join(f"- {line}" for line in notice.lines))
     return Panel(body, title=Text(notice.heading, style="bold"), title_align="left",
                  border_style="red" if notice.inadmissible else "yellow", box=box.HEAVY if notice.inadmissible else box.ROUNDED)
-
-
-def render(result, console: Console) -> None:
-    console.print(Text(result.model_name, style="bold underline"))
-    d = result.data
-    console.print(f"Model file: {result.model_source}")
-    console.print(f"Data: {d.source}; {T.rows_phrase(d)}")
-    console.print(T.status_line(result))
-    console.print()
-    notice = T.problem_notice(result)
-    if notice is not None:
-        console.print(problem_panel(notice))
-        console.print()
-    missing = T.missing_table(result)
-    if missing is not None:
-        console.print(rich_table(missing))
-    if result.fit is not None and result.converged:
-        console.print(rich_table(T.fit_table(result)))
-        console.print(Text(GUIDE_NOTE, style="italic"))
-        if result.robust is not None:
-            console.print(Text(T.robust_definition(result.robust), style="italic"))
-        for line in T.normality_lines(result, options=True):
-            console.print(line)
-        local = T.local_fit_line(result)
-        if local:
-            console.print(local)
-        console.print()
-    if result.multigroup and result.converged:
-        console.print(rich_table(T.group_table(result)))
-    for g, group in enumerate(result.groups):
-        if result.multigroup:
-            console.print(Text(f"Group {group.label} (N = {group.data.n_obs})", style="bold reverse"))
-        for table in T.estimate_tables(result, g):
-            console.print(rich_table(table))
-        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.distinct_table(result, g),
-                      T.residual_table(result, g), T.case_table(result, g)):
-            if extra is not None:
-                console.print(rich_table(extra))
-    mi = T.modification_table(result)
-    if mi is not None:
-        console.print(rich_table(mi))
-    if result.warnings:
-        console.print(Text("Notes and warnings", style="bold"))
-        for w in result.warnings:
-            console.print(f"  - {w}")
-        console.print()
-    console.print(Text(HIGH_STAKES_NOTE, style="italic"))
-
-
-def render_text(result, width: int = 120) -> str:
-    buffer = io.StringIO()
-    console = SafeConsole(file=buffer, width=width, no_color=True, highlight=False, emoji=False, markup=False)
-    render(result, console)
-    return buffer.getvalue()
 
 
 def render_report(report, console: Console) -> None:
@@ -153,11 +110,24 @@ def render_report(report, console: Console) -> None:
     console.print(Text(report.title, style="bold underline"))
     for line in report.lines:
         console.print(line)
+    if report.warnings:
+        console.print(Text(WARNINGS, style="bold"))
+        console.print(_bullets(report.warnings))
     if report.paragraph:
         console.print()
         console.print(report.paragraph)
+    for figure in report.figures:  # pictures cannot be drawn here: named, where a reader finds them
+        console.print(Text(f"{figure.title}: a picture, drawn in the HTML, Markdown and Word reports", style="dim"))
+    console.print()
+    section = ""
     for table in report.tables:
+        if table.section and table.section != section:
+            console.print(Text(table.section, style="bold reverse"))
+        section = table.section
         console.print(rich_table(table))
+    for listing in report.listings:
+        console.print(Text(listing.title, style="bold"))
+        console.print(Text(printable(listing.text, keep_newlines=True)))
     for line in report.notes:
         console.print(line)
     for line in report.cautions:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import base64
 import csv
 import io
 
@@ -10,30 +11,8 @@ import numpy as np
 from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import latex_text, markdown_text
-from cfa_tool.reporting.paragraph import methods_paragraph
-from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ReportTable
-
-
-def all_tables(result) -> list[ReportTable]:
-    out = []
-    if result.fit is not None and result.converged:
-        out.append(T.fit_table(result))
-        if result.multigroup:
-            out.append(T.group_table(result))
-    for g in range(len(result.groups)):
-        out.extend(T.estimate_tables(result, g))
-        for extra in (T.reliability_table(result, g), T.sum_score_table(result, g), T.distinct_table(result, g),
-                      T.residual_table(result, g), T.case_table(result, g)):
-            if extra is not None:
-                out.append(extra)
-    for extra in (T.modification_table(result), T.item_table(result), T.missing_table(result)):
-        if extra is not None:
-            out.append(extra)
-    for g in range(len(result.groups)):
-        for extra in (T.category_table(result, g), T.correlation_table(result, g)):
-            if extra is not None:
-                out.append(extra)
-    return out
+from cfa_tool.reporting.document import WARNINGS
+from cfa_tool.reporting.tables import ReportTable
 
 
 def markdown_table(table: ReportTable) -> str:
@@ -49,24 +28,6 @@ def markdown_table(table: ReportTable) -> str:
     if table.note:
         lines += ["", f"*{markdown_text(table.note)}*"]
     return "\n".join(lines) + "\n"
-
-
-def markdown_report(result) -> str:
-    parts = [f"# {markdown_text(result.model_name)}", ""]
-    notice = T.problem_notice(result)
-    if notice is not None:
-        parts += [f"## {markdown_text(notice.heading)}", ""] + [f"- {markdown_text(line)}" for line in notice.lines] + [""]
-    parts += [markdown_text(f"Data: {result.data.source}; {T.rows_phrase(result.data)}. "
-                            f"{T.status_line(result)}."), "",
-             "## Summary for a paper", "", markdown_text(methods_paragraph(result)), ""]
-    for line in T.normality_lines(result):
-        parts += [markdown_text(line), ""]
-    for table in all_tables(result):
-        parts.append(markdown_table(table))
-    if result.warnings:
-        parts += ["## Notes and warnings", ""] + [f"- {markdown_text(w)}" for w in result.warnings] + [""]
-    parts += ["## Cautions", "", markdown_text(GUIDE_NOTE), "", markdown_text(HIGH_STAKES_NOTE), ""]
-    return "\n".join(parts)
 
 
 def _csv_number(value) -> str:
@@ -111,11 +72,6 @@ def latex_table(table: ReportTable) -> str:
     return "\n".join(lines) + "\n"
 
 
-def latex_tables(result) -> str:
-    header = "% Tables written by cfa-tool; needs \\usepackage{booktabs}\n"
-    return header + "\n".join(latex_table(t) for t in all_tables(result))
-
-
 def notice_table(notice: T.ProblemNotice) -> ReportTable:
     """The problems that every view shows first, as a table for data files (where no notice can go)."""
     return ReportTable("problems", notice.heading, ("Problem",), ("l",), tuple((line,) for line in notice.lines))
@@ -130,9 +86,23 @@ def report_markdown(report) -> str:
     parts += [f"# {markdown_text(report.title)}", ""]
     if report.lines:
         parts += [markdown_text(line) + "  " for line in report.lines] + [""]
+    if report.warnings:
+        parts += [f"**{WARNINGS}**", ""] + [f"- {markdown_text(w)}" for w in report.warnings] + [""]
     if report.paragraph:
         parts += ["## Summary for a paper", "", markdown_text(report.paragraph), ""]
-    parts += [markdown_table(t) for t in report.tables]
+    for figure in report.figures:  # an image of its SVG (a data address): nothing in it can run
+        data = base64.b64encode(figure.svg.encode("utf-8")).decode("ascii")
+        parts += [f"**{markdown_text(figure.title)}**", "", f"![{markdown_text(figure.title)}](data:image/svg+xml;base64,"
+                  f"{data})", ""] + ([f"*{markdown_text(figure.note)}*", ""] if figure.note else [])
+    section = ""
+    for table in report.tables:
+        if table.section and table.section != section:
+            parts += [f"## {markdown_text(table.section)}", ""]
+        section = table.section
+        parts.append(markdown_table(table))
+    for listing in report.listings:  # escaped line by line (a code block would pass markup to lenient readers)
+        lines = [markdown_text(line) if line.strip() else "" for line in listing.text.rstrip("\n").split("\n")]
+        parts += [f"## {markdown_text(listing.title)}", "", "  \n".join(lines).replace("  \n  \n", "\n\n"), ""]
     if report.notes:
         parts += ["## Notes", ""] + [f"- {markdown_text(w)}" for w in report.notes] + [""]
     if report.cautions:

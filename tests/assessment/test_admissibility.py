@@ -15,12 +15,14 @@ from scipy.optimize import minimize
 
 import cfa_tool
 from cfa_tool.assessment.admissibility import ProblemKind
-from cfa_tool.reporting.html_report import html_report
+from cfa_tool.reporting.fit_document import fit_report
+from cfa_tool.reporting.html_report import report_html
 from cfa_tool.reporting.paragraph import methods_paragraph
-from cfa_tool.reporting.terminal import render_text
-from cfa_tool.reporting.text_formats import csv_table, markdown_report
+from cfa_tool.reporting.terminal import report_text
+from cfa_tool.reporting.text_formats import csv_table, report_markdown
 from cfa_tool.reporting import tables as T
 from tests.commands.test_cli import run
+from tests.reporting.test_reports import figure_svgs
 
 HEYWOOD = """factor visual: x1, x2, x3
 factor textual: x4, x5, x6
@@ -84,34 +86,33 @@ def test_an_admissible_solution_has_no_problems(hs_data):
     result = cfa_tool.fit(PLAIN, hs_data)
     assert result.admissible and result.problems == ()
     assert T.problem_notice(result) is None
-    assert "not admissible" not in render_text(result, width=100)
-    assert 'id="problems"' not in html_report(result)
+    assert "not admissible" not in report_text(fit_report(result), width=100)
+    assert 'id="problems"' not in report_html(fit_report(result))
 
 
 def test_terminal_shows_problems_before_the_fit_table(heywood):
-    text = render_text(heywood, width=100)
+    text = report_text(fit_report(heywood), width=100)
     assert text.index(T.NOT_ADMISSIBLE) < text.index("Model fit")
     assert text.index("x9 is negative") < text.index("Model fit")
 
 
 def test_html_banner_comes_first_and_marks_rows_and_diagram(heywood):
-    page = html_report(heywood)
+    page = report_html(fit_report(heywood))
     body = page[page.index("<body>"):]
     assert body.index('id="problems"') < body.index("<h1>") < body.index("Summary for a paper")
-    assert '<circle class="residual problem"' in page
+    assert any('<circle class="residual problem"' in svg for svg in figure_svgs(page))
     assert '<tr class="problem">' in page
 
 
 def test_notebook_view_shows_the_banner_and_the_rows_used(heywood):
     fragment = heywood._repr_html_()
     assert fragment.index('id="problems"') < fragment.index("<table")
-    assert "N = 301 rows analysed of 301 read" in fragment
+    assert "301 rows analysed of 301 read" in fragment
 
 
 def test_markdown_and_json_put_problems_first(heywood):
-    markdown = markdown_report(heywood)
-    first_section = markdown.split("\n## ")[1]
-    assert first_section.startswith(T.NOT_ADMISSIBLE)
+    markdown = report_markdown(fit_report(heywood))
+    assert markdown.startswith(f"## {T.NOT_ADMISSIBLE}")  # before the title
     out = heywood.to_dict()
     assert list(out)[:2] == ["admissible", "problems"]
     assert out["admissible"] is False

@@ -170,15 +170,16 @@ def test_blocks_are_one_group_only(hs_data):
 
 
 def test_reports_show_the_rotated_block_not_the_unrotated_one(geomin_fit):
-    from cfa_tool.reporting.html_report import html_report
+    from cfa_tool.reporting.fit_document import fit_report
+    from cfa_tool.reporting.html_report import report_html
     from cfa_tool.reporting.paragraph import methods_paragraph
-    from cfa_tool.reporting.text_formats import markdown_report
+    from cfa_tool.reporting.text_formats import report_markdown
 
     block = geomin_fit.exploratory[0]
     assert not any(set(r.variables) & set(block.factors) for r in geomin_fit.estimates)
     text = geomin_fit.summary()
-    markdown = markdown_report(geomin_fit)
-    html = html_report(geomin_fit)
+    markdown = report_markdown(fit_report(geomin_fit))
+    html = report_html(fit_report(geomin_fit))
     for report in (markdown, html, " ".join(text.split())):
         assert "Exploratory block f1, f2, f3 (geomin rotation, oblique)" in report
         assert "Correlations of the rotated factors" in report
@@ -194,7 +195,8 @@ def test_reports_show_the_rotated_block_not_the_unrotated_one(geomin_fit):
 
 def test_diagram_draws_the_rotated_salient_loadings(geomin_fit):
     from cfa_tool.reporting.diagram import BLOCK_LOADING_DRAWN, path_diagram
-    from cfa_tool.reporting.html_report import html_report
+    from cfa_tool.reporting.fit_document import fit_report
+    from cfa_tool.reporting.html_report import report_html
     from cfa_tool.reporting.numbers import unit
 
     svg = path_diagram(geomin_fit)
@@ -205,7 +207,7 @@ def test_diagram_draws_the_rotated_salient_loadings(geomin_fit):
     assert len(salient) == 10  # nine items on their own factor, and x9 on a second (the .37 cross-loading)
     for value in salient:
         assert f">{unit(value, 2)}</text>" in svg
-    assert "rotated loadings of .30 or more" in html_report(geomin_fit)
+    assert "rotated loadings of .30 or more" in report_html(fit_report(geomin_fit))
 
 
 def test_json_holds_the_rotated_block(geomin_fit):
@@ -340,8 +342,9 @@ def test_correlations_between_two_blocks_are_reported_with_delta_method_errors()
 def test_an_orthogonal_block_reports_its_correlations_with_the_other_factors(hs_data):
     """A varimax block beside a factor: its rotated factors' correlations with that factor are shown in every
     format, equal to cov(f*, g) = M' cov(f, g) / sd(g) (M orthogonal) recomputed here from the fitted matrices."""
-    from cfa_tool.reporting.html_report import html_report
-    from cfa_tool.reporting.text_formats import markdown_report
+    from cfa_tool.reporting.fit_document import fit_report
+    from cfa_tool.reporting.html_report import report_html
+    from cfa_tool.reporting.text_formats import report_markdown
 
     text = "factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6 rotated by varimax\n"
     fit = cfa_tool.fit(text, hs_data)
@@ -361,7 +364,7 @@ def test_an_orthogonal_block_reports_its_correlations_with_the_other_factors(hs_
     np.testing.assert_allclose(block.other_correlations[:, 0], expected, atol=1e-8)
     assert np.all(np.isfinite(block.other_correlations_se)) and np.all(block.other_correlations_se > 0)
     value = f"{block.other_correlations[1, 0]:.2f}".lstrip("0")
-    for report in (" ".join(fit.summary().split()), markdown_report(fit), html_report(fit)):
+    for report in (" ".join(fit.summary().split()), report_markdown(fit_report(fit)), report_html(fit_report(fit))):
         assert "Correlations of the rotated factors visual, textual" in report and value in report
 
 
@@ -400,7 +403,8 @@ def test_methods_paragraph_counts_each_factors_items_and_a_one_factor_block_is_n
     """Three items of 'speed' and six of the block (the model file's own counts); a one-factor block has nothing to
     rotate, and its loadings are those of the same factor fitted as a confirmatory factor with variance 1."""
     from cfa_tool.reporting.paragraph import methods_paragraph
-    from cfa_tool.reporting.text_formats import markdown_report
+    from cfa_tool.reporting.fit_document import fit_report
+    from cfa_tool.reporting.text_formats import report_markdown
 
     side = cfa_tool.fit("factor speed: x7, x8, x9\nexploratory factors visual, textual from x1, x4, x2, x3, x5, x6\n",
                         hs_data)
@@ -410,7 +414,7 @@ def test_methods_paragraph_counts_each_factors_items_and_a_one_factor_block_is_n
                        hs_data)
     block = one.exploratory[0]
     assert block.names_by.value == "one-factor"
-    report = markdown_report(one)
+    report = report_markdown(fit_report(one))
     assert "Exploratory block speed (one factor: no rotation)" in report and "speed (geomin" not in report
     assert "one factor: no rotation" in methods_paragraph(one)
     # a one-factor block is the confirmatory three-factor model of these data; its standardized speed loadings

@@ -289,13 +289,14 @@ def test_few_clusters_bring_a_caution_first(hs_data):
     # no more clusters than free parameters the clusters' score sums span too few dimensions for the sandwich
     # (Cameron & Miller 2015, recalled from memory): the caution goes first, with the problems of the solution.
     from cfa_tool.assessment.admissibility import ProblemKind
-    from cfa_tool.reporting.terminal import render_text
+    from cfa_tool.reporting.fit_document import fit_report
+    from cfa_tool.reporting.terminal import report_text
 
     result = cfa_tool.fit(THREE_FACTORS, hs_data.assign(unit=np.arange(len(hs_data)) % 12), cluster="unit")
     (problem,) = [p for p in result.problems if p.kind is ProblemKind.FEW_CLUSTERS]
     assert "Only 12 clusters" in problem.explanation and "no more than the 21 free parameters" in problem.explanation
     assert result.admissible  # a doubt about the standard errors, not an impossible solution
-    text = render_text(result)
+    text = report_text(fit_report(result))
     assert text.index("Only 12 clusters") < text.index("Model fit")
     forty = cfa_tool.fit(THREE_FACTORS, hs_data.assign(unit=np.arange(len(hs_data)) % 25), cluster="unit")
     assert "fewer than about 30-50 clusters" in [p for p in forty.problems if p.kind is ProblemKind.FEW_CLUSTERS][0].explanation

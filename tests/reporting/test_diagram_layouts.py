@@ -139,7 +139,8 @@ def test_cli_writes_the_diagram_of_every_group_in_each_format(tmp_path, hs_data,
     model = tmp_path / "three.cfa"
     model.write_text(THREE_FACTORS)
     out = tmp_path / f"d{suffix}"
-    proc = run("fit", str(model), "--data", str(data), "--group-column", "school", "--diagram", str(out), "--dpi", "150")
+    resolution = ["--dpi", "150"] if suffix == ".png" else []  # a resolution applies to a PNG only
+    proc = run("fit", str(model), "--data", str(data), "--group-column", "school", "--diagram", str(out), *resolution)
     assert proc.returncode == 0, proc.stderr
     content = out.read_bytes()
     if suffix == ".pdf":
@@ -181,16 +182,17 @@ def test_word_figures_fit_on_the_page(shapes):
     from docx import Document
     from docx.shared import Inches
 
-    from cfa_tool.reporting.docx_report import docx_report
+    from cfa_tool.reporting.docx_report import report_docx
+    from cfa_tool.reporting.fit_document import fit_report
 
     for shape, groups in (("small", 1), ("groups", 2), ("60 items", 1), ("method factor", 1)):
-        document = Document(io.BytesIO(docx_report(shapes[shape], 100)))
+        document = Document(io.BytesIO(report_docx(fit_report(shapes[shape]), 100)))
         pictures = document.inline_shapes
         assert len(pictures) == groups
         for picture in pictures:  # the width of the text area, unless that would run off the page's foot
             assert picture.width <= Inches(6.5) + 1 and picture.height <= Inches(8) + 1
             assert abs(picture.width - Inches(6.5)) <= 1 or abs(picture.height - Inches(8)) <= 1
-    notes = [p.text for p in Document(io.BytesIO(docx_report(shapes["method factor"], 100))).paragraphs]
+    notes = [p.text for p in Document(io.BytesIO(report_docx(fit_report(shapes["method factor"]), 100))).paragraphs]
     assert any("Grey ellipses: method factors" in text for text in notes)
 
 

@@ -9,7 +9,8 @@ import numpy as np
 
 import cfa_tool
 from cfa_tool.reporting.paragraph import methods_paragraph
-from cfa_tool.reporting.terminal import render_text
+from cfa_tool.reporting.fit_document import fit_report
+from cfa_tool.reporting.terminal import report_text
 from tests.conftest import THREE_FACTORS, holzinger_swineford
 
 
@@ -37,7 +38,7 @@ def test_a_negative_loading_gives_the_range_in_absolute_value():
 def test_full_information_says_why_mardias_tests_are_missing():
     data = _hs()
     data.iloc[::10, 4] = np.nan
-    text = render_text(cfa_tool.fit(THREE_FACTORS, data))
+    text = report_text(fit_report(cfa_tool.fit(THREE_FACTORS, data)))
     assert "Mardia's tests of multivariate normality and the table of rows that contribute most" in " ".join(text.split())
 
 

@@ -138,24 +138,23 @@ def test_every_format_holds_the_same_tables_and_report_writes_them_again(command
     report = Report.from_dict(saved["report"])
     assert report.tables, "a report without tables"
     titles = [t.title for t in report.tables]
-    # the terminal: 80 columns, the title and every table's title (the fit and the exploration keep
-    # their own layouts, which show the problems first too; the exploration prints its draft model's lines as the
-    # file holds them)
+    # the terminal: 80 columns, the title and every table's title (the exploration keeps its own layout, which
+    # shows the problems first too, and prints its draft model's lines as the file holds them)
     if command != "explore":
         assert max(len(line) for line in _report_lines(text)) <= 80
-    if command not in ("fit", "explore"):
+    if command != "explore":
         assert report.title.split(" (")[0] in " ".join(text.split())
         for title in titles:
             assert title in " ".join(text.split())  # a long title wraps
     # HTML: every report table with its caption and cells
     shown = {caption: rows for caption, rows in _html_tables(written[1])}
     for table in report.tables:
-        if command in ("fit", "explore") and table.title not in shown:
-            continue  # the fit's and the exploration's own pages show their main tables (the Word file has all)
+        if command == "explore" and table.title not in shown:
+            continue  # the exploration's own page shows its main tables (the Word file has all)
         assert shown[table.title] == [list(r) for r in table.rows], table.title
     # Markdown: every title
     markdown = written[2].read_text()
-    if command not in ("fit", "explore"):
+    if command != "explore":
         for title in titles:
             assert f"**{markdown_text(title)}**" in markdown
     # Word: numbered tables with the same titles and cells, problems first
@@ -166,7 +165,7 @@ def test_every_format_holds_the_same_tables_and_report_writes_them_again(command
                                           for t in report.tables]
     if report.notice is not None:
         paragraphs = [p.text for p in docx.Document(str(written[3])).paragraphs]
-        assert paragraphs[1] == report.notice.heading
+        assert paragraphs[0] == report.notice.heading
     # CSV and LaTeX: one pair per table (and the problems first), headers as in the table
     names = sorted(p.name for p in written[4].iterdir() if not p.name.startswith("."))
     keys = [t.key for t in report.tables] + (["problems"] if report.notice is not None else [])
@@ -181,6 +180,9 @@ def test_every_format_holds_the_same_tables_and_report_writes_them_again(command
     code, text, err = _run(["report", written[0], "--html", again / "r.html", "--docx", again / "r.docx",
                             "--markdown", again / "r.md", "--tables", again / "tables"], capsys)
     assert code == 0, err
+    assert report.title not in text and "HTML report written to" in text  # its work is the files: no terminal view
+    code, text, err = _run(["report", written[0]], capsys)  # no file asked for: the terminal view
+    assert code == 0, err
     assert max(len(line) for line in _report_lines(text)) <= 80
     for title in titles:
         assert " ".join(title.split()) in " ".join(text.split())
@@ -190,7 +192,7 @@ def test_every_format_holds_the_same_tables_and_report_writes_them_again(command
         assert replayed[table.title] == [list(r) for r in table.rows]
     for name in names:
         assert (again / "tables" / name).read_text() == (written[4] / name).read_text(), name
-    if command not in ("fit", "explore"):
+    if command != "explore":
         assert (again / "r.md").read_text() == markdown
         assert (again / "r.html").read_text() == written[1].read_text()
 
@@ -288,7 +290,7 @@ def test_report_never_replaces_its_input_or_a_file_it_did_not_write(tmp_path, ca
     assert code == 2 and "no such file" in _error_line(err)
     code, out, err = _run(["report", saved, "--html", "/dev/null"], capsys)  # a special file is written in place
     assert code == 0, err
-    assert "Power and sample size" in out
+    assert out == "HTML report written to /dev/null\n"  # the file alone: no terminal view beside it
 
 
 def test_an_old_fit_result_names_what_to_do(tmp_path, capsys, hs_data):

@@ -17,11 +17,26 @@ import pytest
 import cfa_tool
 from cfa_tool.reporting.diagram import path_diagram
 from cfa_tool.reporting.escape import latex_text, markdown_text
-from cfa_tool.reporting.html_report import html_report
+from cfa_tool.reporting.fit_document import fit_report
+from cfa_tool.reporting.html_report import report_html
 from cfa_tool.reporting.paragraph import methods_paragraph
-from cfa_tool.reporting.text_formats import latex_tables, markdown_report
+from cfa_tool.reporting.text_formats import report_markdown, report_table_files
 from tests.conftest import simulate_cfa
 from tests.commands.test_cli import DATA, MODEL, run
+
+
+def figure_svgs(page: str) -> list[str]:
+    """The SVG text of every picture of an HTML report (images with a base64 data address)."""
+    import base64
+
+    return [base64.b64decode(data).decode("utf-8")
+            for data in re.findall(r'src="data:image/svg\+xml;base64,([^"]+)"', page)]
+
+
+def _latex(report) -> str:
+    """Every LaTeX table of a report, in order."""
+    return "\n".join(text for name, text in report_table_files(report).items() if name.endswith(".tex"))
+
 
 HOSTILE = "<script>alert(1)</script>"
 HOSTILE_IMG = "<img src=x onerror=alert(1)>"
@@ -49,7 +64,7 @@ def _count(pattern: str, text: str) -> int:
 
 
 def test_html_report_has_every_section_and_no_external_assets(demo_result):
-    page = html_report(demo_result)
+    page = report_html(fit_report(demo_result))
     f = demo_result.fit
     for words in ("Summary for a paper", "Path diagram", "Model fit", "Factor ", "Factor variances and correlations", "Residual correlations",
                   "Largest modification indices", "Items: descriptive statistics (analysed rows)", "Correlations of the items", "not laws", "licensed professional",
@@ -95,14 +110,14 @@ def test_diagram_of_a_large_higher_order_model_is_legible():
 
 
 def test_user_strings_are_escaped_in_every_format(hostile_result):
-    page = html_report(hostile_result)
+    page = report_html(fit_report(hostile_result))
     svg = path_diagram(hostile_result)
     for text in (page, svg):
         assert HOSTILE not in text and HOSTILE_IMG not in text
         assert "&lt;script&gt;alert(1)&lt;/script&gt;" in text
-    md = markdown_report(hostile_result)
+    md = report_markdown(fit_report(hostile_result))
     assert HOSTILE not in md and "<img" not in md
-    tex = latex_tables(hostile_result)
+    tex = _latex(fit_report(hostile_result))
     assert r"e\_1" in tex and r"b \& c" in tex
     assert markdown_text("a|b*c") == r"a\|b\*c"
     assert latex_text("50% of $x_1") == r"50\% of \$x\_1"
@@ -117,7 +132,9 @@ def test_methods_paragraph_reports_the_numbers(demo_result):
 
 def test_notebook_display(demo_result):
     fragment = demo_result._repr_html_()
-    assert fragment.startswith('<p class="note">N = 480 rows analysed') and "Error variance" in fragment and "<html" not in fragment
+    # the fit's one report (a notebook shows what every view shows), without a page around it
+    assert fragment.startswith(f"<h1>{demo_result.model_name}</h1>") and "480 rows analysed" in fragment
+    assert "Error variance" in fragment and "<html" not in fragment
 
 
 def test_cli_writes_every_report(tmp_path):
@@ -155,7 +172,7 @@ def _chromium(*args: str) -> subprocess.CompletedProcess:
 @pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed (.ci/run installs it)")
 def test_report_in_a_real_browser(tmp_path, hostile_result):
     page = tmp_path / "report.html"
-    page.write_text(html_report(hostile_result), encoding="utf-8")
+    page.write_text(report_html(fit_report(hostile_result)), encoding="utf-8")
     url = page.resolve().as_uri()
     shot = tmp_path / "report.png"
     done = _chromium("--window-size=1200,1600", f"--screenshot={shot}", "--enable-logging=stderr", "--v=0", url)
@@ -165,7 +182,8 @@ def test_report_in_a_real_browser(tmp_path, hostile_result):
     dom = _chromium("--dump-dom", url).stdout
     assert "<script>alert(1)</script>" not in dom and "<img src=\"x\"" not in dom
     assert "&lt;script&gt;alert(1)&lt;/script&gt;" in dom and "&lt;img src=x onerror=alert(1)&gt;" in dom
-    assert _count(r"<ellipse\b", dom) == 2 and _count(r"<rect\b", dom) == 6
+    pictures = figure_svgs(dom)  # the diagram is an image of its SVG: nothing in it can run
+    assert len(pictures) == 1 and _count(r"<ellipse\b", pictures[0]) == 2 and _count(r"<rect\b", pictures[0]) == 6
 
 
 def test_methods_paragraph_names_the_estimator_that_was_used():
@@ -232,7 +250,7 @@ def test_csv_tables_hold_numbers(demo_result, tmp_path):
 
 
 def test_latex_tables_are_plain_ascii_with_macros(demo_result):
-    tex = latex_tables(demo_result)
+    tex = _latex(fit_report(demo_result))
     assert all(ord(ch) < 128 for ch in tex), sorted({ch for ch in tex if ord(ch) >= 128})
     assert r"R\textsuperscript{2}" in tex
     assert latex_text("\u03c7\u00b2 \u2265 .95") == r"$\chi$\textsuperscript{2} $\geq$ .95"
@@ -240,13 +258,14 @@ def test_latex_tables_are_plain_ascii_with_macros(demo_result):
 
 @pytest.mark.parametrize("model", ["demo", "heywood", "groups"])
 def test_terminal_report_fits_80_columns(model, demo_result, hs_data):
-    from cfa_tool.reporting.terminal import render_text
+    from cfa_tool.reporting.fit_document import fit_report
+    from cfa_tool.reporting.terminal import report_text
 
     three = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
     result = {"demo": lambda: demo_result,
               "heywood": lambda: cfa_tool.fit(three + "covary x7, x8\ncovary x8, x9\n", hs_data),
               "groups": lambda: cfa_tool.fit(three, hs_data, group="school")}[model]()
-    text = render_text(result, width=80)
+    text = report_text(fit_report(result), width=80)
     assert max(len(line) for line in text.splitlines()) <= 80
 
 

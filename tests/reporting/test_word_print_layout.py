@@ -16,11 +16,13 @@ import cfa_tool
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.column_parts import column_parts
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.docx_report import WIDE_SIZE, docx_report, report_docx, typeset
-from cfa_tool.reporting.html_report import html_report
+from cfa_tool.reporting.docx_report import WIDE_SIZE, report_docx, typeset
+from cfa_tool.reporting.fit_document import fit_report
+from cfa_tool.reporting.html_report import report_html
 from cfa_tool.reporting.remedies import Remedy
 from cfa_tool.reporting.tables import ReportTable
-from cfa_tool.reporting.text_formats import all_tables, markdown_report
+from cfa_tool.reporting.fit_document import fit_report, fit_tables
+from cfa_tool.reporting.text_formats import report_markdown
 from cfa_tool.resources import resource_dir
 
 ORDINAL_WORDS = "ordinal"
@@ -37,7 +39,7 @@ def rider():
 
 @pytest.fixture(scope="module")
 def word(rider):
-    return docx.Document(io.BytesIO(docx_report(rider)))
+    return docx.Document(io.BytesIO(report_docx(fit_report(rider))))
 
 
 def _tables_by_section(document) -> list[tuple[object, object]]:
@@ -72,7 +74,7 @@ def test_typeset_keeps_numbers_and_intervals_whole():
 
 
 def test_numeric_cells_do_not_wrap_and_hold_no_breakable_minus_or_space(word, rider):
-    expected = all_tables(rider)
+    expected = fit_tables(rider)
     assert len(word.tables) == len(expected)
     for grid, table in zip(word.tables, expected):
         for r, row in enumerate(grid.rows[1:]):
@@ -88,8 +90,8 @@ def test_numeric_cells_do_not_wrap_and_hold_no_breakable_minus_or_space(word, ri
 
 def test_wide_matrices_are_on_a_landscape_page_in_small_type_and_every_table_fits_its_page(word, rider):
     placed = _tables_by_section(word)
-    titles = [t.title for t in all_tables(rider)]
-    wide = [k for k, t in enumerate(all_tables(rider)) if t.key.startswith(("correlations_", "residual"))]
+    titles = [t.title for t in fit_tables(rider)]
+    wide = [k for k, t in enumerate(fit_tables(rider)) if t.key.startswith(("correlations_", "residual"))]
     assert len(wide) == 2, titles
     for k, (table, section) in enumerate(placed):
         assert _table_width(table) <= _text_width(section) + 0.5, titles[k]
@@ -139,18 +141,24 @@ def test_column_parts_is_the_terminals_rule():
 
 
 def test_no_ordinal_note_under_a_continuous_fit_in_any_format(rider, word):
-    correlations = next(t for t in all_tables(rider) if t.key.startswith("correlations_"))
+    correlations = next(t for t in fit_tables(rider) if t.key.startswith("correlations_"))
     assert correlations.note == "With full-information estimation: the saturated model's estimates from every answer."
-    assert ORDINAL_WORDS not in markdown_report(rider).lower()
-    assert ORDINAL_WORDS not in html_report(rider).lower()
+    assert ORDINAL_WORDS not in report_markdown(fit_report(rider)).lower()
+    assert ORDINAL_WORDS not in report_html(fit_report(rider)).lower()
     assert not any(ORDINAL_WORDS in p.text.lower() for p in word.paragraphs)
 
 
-def test_manuscript_text_says_remedies_in_words_and_the_terminal_adds_the_option(rider, word):
-    assert not any("--" in p.text for p in word.paragraphs)
-    words, terminal = T.normality_lines(rider), T.normality_lines(rider, options=True)
-    assert len(words) == 1 and "--" not in words[0] and Remedy.COMPLETE_ROWS.words in words[0]
-    assert f"{Remedy.COMPLETE_ROWS.words} ({Remedy.COMPLETE_ROWS.option})" in terminal[0]
-    assert f"{Remedy.ROBUST.words} ({Remedy.ROBUST.option})" in terminal[0]
-    assert words[0] in markdown_report(rider)
-    assert terminal[0] not in markdown_report(rider)
+def test_every_view_gives_the_option_of_a_remedy_and_the_methods_paragraph_none(rider, word):
+    # one report for every view: advice names the option after the words wherever it is read (the reader of the
+    # HTML or Word report is the researcher who runs the command); the methods paragraph, for a paper, names none
+    lines = T.normality_lines(rider)
+    assert len(lines) == 1
+    for remedy in (Remedy.COMPLETE_ROWS, Remedy.ROBUST):
+        assert f"{remedy.words} ({remedy.option})" in lines[0]
+    report = fit_report(rider)
+    assert lines[0] in next(t for t in report.tables if t.key == "fit").note  # under the fit table, in every view
+    assert "--" not in report.paragraph
+    texts = [p.text for p in word.paragraphs]
+    method = texts[texts.index("Method and results") + 1]
+    assert "--" not in method and method.startswith("A confirmatory factor analysis")
+    assert any(f"({Remedy.COMPLETE_ROWS.option})" in t for t in texts)

@@ -14,9 +14,10 @@ import pytest
 import cfa_tool
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.diagram import path_diagram
-from cfa_tool.reporting.docx_report import docx_report
+from cfa_tool.reporting.docx_report import report_docx
+from cfa_tool.reporting.fit_document import fit_report
 from cfa_tool.reporting.picture import svg_to_png
-from cfa_tool.reporting.text_formats import all_tables
+from cfa_tool.reporting.fit_document import fit_tables
 from cfa_tool.resources import resource_dir
 from tests.commands.test_cli import run
 
@@ -36,11 +37,11 @@ def _borders(cell) -> set[str]:
 
 
 def test_word_report_puts_problems_first_and_numbers_every_table(heywood):
-    document = docx.Document(io.BytesIO(docx_report(heywood)))
+    document = docx.Document(io.BytesIO(report_docx(fit_report(heywood))))
     texts = [p.text for p in document.paragraphs]
-    assert texts[0] == heywood.model_name and texts[1] == T.NOT_ADMISSIBLE
-    assert "x9 is negative" in texts[2]
-    expected = all_tables(heywood)
+    assert texts[0] == T.NOT_ADMISSIBLE and "x9 is negative" in texts[1]  # the problems before the title
+    assert texts[2] == heywood.model_name
+    expected = fit_tables(heywood)
     assert len(document.tables) == len(expected)
     for k, table in enumerate(expected, start=1):
         at = texts.index(f"Table {k}")
@@ -59,7 +60,7 @@ def test_word_report_puts_problems_first_and_numbers_every_table(heywood):
 
 @pytest.mark.skipif(not CONVERTER, reason="rsvg-convert is not installed")
 def test_word_report_has_the_diagram_at_print_resolution(heywood):
-    document = docx.Document(io.BytesIO(docx_report(heywood)))
+    document = docx.Document(io.BytesIO(report_docx(fit_report(heywood))))
     assert len(document.inline_shapes) == 1
     assert "Figure 1" in [p.text for p in document.paragraphs]
     svg = path_diagram(heywood)
@@ -75,7 +76,7 @@ def test_cli_writes_word_and_checks_dpi(tmp_path, hs_data):
     out = tmp_path / "r.docx"
     proc = run("fit", str(model), "--data", str(data), "--docx", str(out))
     assert proc.returncode == 0, proc.stderr
-    assert docx.Document(str(out)).paragraphs[1].text == T.NOT_ADMISSIBLE
+    assert docx.Document(str(out)).paragraphs[0].text == T.NOT_ADMISSIBLE
     proc = run("fit", str(model), "--data", str(data), "--docx", str(tmp_path / "s.docx"), "--dpi", "5")
     assert proc.returncode == 2 and "--dpi" in proc.stderr and not (tmp_path / "s.docx").exists()
     proc = run("fit", str(model), "--data", str(data), "--docx", str(data))
@@ -83,16 +84,18 @@ def test_cli_writes_word_and_checks_dpi(tmp_path, hs_data):
 
 
 def test_one_diagram_per_group_named_on_it(hs_data):
-    from cfa_tool.reporting.html_report import html_report
+    from cfa_tool.reporting.fit_document import fit_report
+    from cfa_tool.reporting.html_report import report_html
+    from tests.reporting.test_reports import figure_svgs
 
     result = cfa_tool.fit("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\n", hs_data, group="school")
-    page = html_report(result)
-    assert page.count('class="path-diagram"') == 2
-    assert "Group Grant-White</text>" in page and "Group Pasteur</text>" in page
+    pictures = figure_svgs(report_html(fit_report(result)))
+    assert [p.count('class="path-diagram"') for p in pictures] == [1, 1]
+    assert "Group Grant-White</text>" in pictures[0] and "Group Pasteur</text>" in pictures[1]
     standalone = path_diagram(result, legend=True)
     assert "Ellipses: factors" in standalone and "Group Grant-White" in standalone
     if CONVERTER:
-        document = docx.Document(io.BytesIO(docx_report(result)))
+        document = docx.Document(io.BytesIO(report_docx(fit_report(result))))
         assert len(document.inline_shapes) == 2
         assert "Path diagram of the fitted model, group Pasteur (standardized values)" in [p.text for p in
                                                                                            document.paragraphs]
@@ -104,7 +107,7 @@ def test_the_word_report_converts_to_pdf_with_its_figure(tmp_path):
     # path diagram as a picture on a page
     result = cfa_tool.fit(resource_dir("models") / "rider_three_factors.cfa", resource_dir("demo") / "rider_survey.csv")
     source = tmp_path / "report.docx"
-    source.write_bytes(docx_report(result, 150))
+    source.write_bytes(report_docx(fit_report(result), 150))
     proc = subprocess.run(["soffice", "--headless", "--convert-to", "pdf", "--outdir", str(tmp_path), str(source)],
                           capture_output=True, text=True, timeout=180, env={**os.environ, "HOME": str(tmp_path)})
     pdf = tmp_path / "report.pdf"

@@ -1,0 +1,214 @@
+"""Every view of one fit (terminal, summary(), notebook, HTML, Markdown, Word) holds the same notices and tables in
+the same order, the problems first and the cautions about the data right under the title; read back by
+independent readers where there is one (python-docx for Word, Python's HTML parser for HTML)."""
+
+from __future__ import annotations
+
+import html
+import io
+import re
+from html.parser import HTMLParser
+
+import docx
+import numpy as np
+import pytest
+from docx.oxml.ns import qn
+
+import cfa_tool
+from cfa_tool.reporting import tables as T
+from cfa_tool.reporting.document import WARNINGS
+from cfa_tool.reporting.docx_report import report_docx
+from cfa_tool.reporting.fit_document import fit_report
+from cfa_tool.reporting.html_report import report_html
+from cfa_tool.reporting.terminal import report_text
+from cfa_tool.reporting.text_formats import report_markdown
+from tests.commands.test_cli import run
+
+# two residual covariances among the speed items: the residual variance of x9 goes below zero in the
+# Holzinger-Swineford (1939) data (a solution that is not admissible; see tests/assessment/test_admissibility.py)
+HEYWOOD = ('name "Three abilities, two residual covariances"\n'
+           "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+           "covary x7, x8\ncovary x8, x9\n")
+
+
+@pytest.fixture(scope="module")
+def troubled(hs_data):
+    """A fit with a problem, rows left out listwise (40 rows lose x1: more than 5%, a prominent warning) and -99
+    codes read as missing."""
+    data = hs_data.copy()
+    data.loc[data.index[:40], "x1"] = np.nan
+    data.loc[data.index[50:55], "x2"] = -99
+    result = cfa_tool.fit(HEYWOOD, data, missing="listwise", missing_codes=(-99,))
+    assert not result.admissible and result.warnings and result.warnings[0].startswith("listwise deletion left out 45")
+    return result
+
+
+def _plain(text: str) -> str:
+    """Text as a reader sees it, for finding things in order: one space between words, true minus signs and
+    non-breaking spaces as plain ones, Markdown's escapes removed."""
+    text = text.replace("\u2212", "-").replace("\u00a0", " ").replace("\\", "")
+    return " ".join(re.sub("[\u2500-\u257f]", " ", text).split())  # the terminal's frames aside
+
+
+class _Text(HTMLParser):
+    """The text a browser shows, without the style sheet and the page's title."""
+
+    def __init__(self):
+        super().__init__()
+        self.parts, self.skip = [], False
+
+    def handle_starttag(self, tag, attrs):
+        self.skip = tag in ("style", "title")
+
+    def handle_endtag(self, tag):
+        self.skip = False
+
+    def handle_data(self, data):
+        if not self.skip:
+            self.parts.append(data)
+
+
+def _html_text(page: str) -> str:
+    parser = _Text()
+    parser.feed(page)
+    return " ".join(parser.parts)
+
+
+def _word_text(data: bytes) -> str:
+    """The paragraphs and table cells of a Word file in the order of its body."""
+    document = docx.Document(io.BytesIO(data))
+    tables = iter(document.tables)
+    paragraphs = iter(document.paragraphs)
+    out = []
+    for child in document.element.body.iterchildren():
+        if child.tag == qn("w:p"):
+            out.append(next(paragraphs).text)
+        elif child.tag == qn("w:tbl"):
+            out += [cell.text for row in next(tables).rows for cell in row.cells]
+    return " ".join(out)
+
+
+def _markers(report) -> list[str]:
+    """What every view shows, in order: the problems, the title, the warnings, the sections and the tables."""
+    out = [report.notice.heading, *report.notice.lines, report.title, WARNINGS, *report.warnings]
+    section = ""
+    for table in report.tables:
+        if table.section and table.section != section:
+            out.append(table.section)
+        section = table.section
+        out.append(table.title)
+    return out + [listing.title for listing in report.listings] + list(report.cautions)
+
+
+def _in_order(text: str, markers: list[str]) -> None:
+    at = 0
+    for marker in markers:
+        found = text.find(_plain(marker), at)
+        assert found >= 0, f"{marker!r} missing or out of order after {text[max(0, at - 80):at]!r}"
+        at = found + len(_plain(marker))
+
+
+def test_every_view_of_a_fit_shows_the_same_notices_and_tables_in_the_same_order(troubled):
+    report = fit_report(troubled)
+    markers = _markers(report)
+    views = {"terminal": report_text(report, 100), "summary": troubled.summary(100),
+             "notebook": _html_text(troubled._repr_html_()), "HTML": _html_text(report_html(report)),
+             "Markdown": report_markdown(report), "Word": _word_text(report_docx(report, 72))}
+    for name, text in views.items():
+        text = _plain(html.unescape(text) if name in ("notebook", "HTML") else text).removeprefix("## ")
+        assert text.startswith(_plain(T.NOT_ADMISSIBLE)), name  # the problems before anything else
+        _in_order(text, markers)
+    assert views["terminal"] == views["summary"]
+
+
+def test_the_data_cautions_come_right_under_the_title(troubled):
+    report = fit_report(troubled)
+    first_table = report.tables[0].title
+    for text in (report_text(report, 100), report_markdown(report), _word_text(report_docx(report, 72))):
+        text = _plain(text)
+        listwise = text.index("listwise deletion left out 45 of 301 rows")
+        assert text.index(report.title) < listwise < text.index(first_table)
+        assert listwise < text.index("A confirmatory factor analysis")  # before the methods paragraph
+
+
+def test_the_word_report_holds_the_normality_tests_and_the_warnings(troubled):
+    texts = [_plain(p.text) for p in docx.Document(io.BytesIO(report_docx(fit_report(troubled), 72))).paragraphs]
+    [normality] = T.normality_lines(troubled)
+    assert any(_plain(normality) in t for t in texts)  # under the fit table, in its note
+    assert _plain(troubled.warnings[0]) in texts
+    assert WARNINGS in texts
+
+
+def test_the_methods_paragraph_names_no_option_where_the_advice_does(troubled):
+    report = fit_report(troubled)
+    assert "--robust" in report.tables[[t.key for t in report.tables].index("fit")].note
+    assert "--" not in report.paragraph
+    assert not re.search(r"--[a-z]", report_markdown(report).split("## Summary for a paper")[1].split("##")[0])
+
+
+def test_the_residual_matrix_is_shaded_in_html_only(troubled):
+    report = fit_report(troubled)
+    residuals = next(t for t in report.tables if t.key == "residuals_0")
+    assert residuals.heat and residuals.section == "Local fit"
+    page = report_html(report)
+    table = page[page.index('<table id="residuals_0">'):]
+    table = table[:table.index("</table>")]
+    assert table.count("background:rgba(200,40,40") + table.count("background:rgba(40,80,200") > 0
+    assert "background:" not in report_markdown(report)
+
+
+def test_a_saved_fit_gives_the_same_views_again(troubled):
+    from cfa_tool.reporting.document import Report
+
+    report = fit_report(troubled)
+    again = Report.from_dict(report.to_dict())
+    assert report_html(again) == report_html(report) and report_markdown(again) == report_markdown(report)
+
+
+MODEL = "factor punctuality: on_time, short_wait, accurate_info, easy_transfer\n"
+
+
+def test_dpi_without_a_picture_cannot_apply(tmp_path):
+    from cfa_tool.resources import resource_dir
+
+    data = str(resource_dir("demo") / "rider_survey.csv")
+    model = tmp_path / "m.cfa"
+    model.write_text(MODEL)
+    for extra in ([], ["--html", str(tmp_path / "r.html")], ["--diagram", str(tmp_path / "d.svg")]):
+        proc = run("fit", str(model), "--data", data, "--dpi", "150", *extra)
+        assert proc.returncode == 2 and proc.stdout == "", proc.stderr
+        assert len(proc.stderr.strip().splitlines()) == 1 and "--dpi" in proc.stderr and "Traceback" not in proc.stderr
+        assert not (tmp_path / "r.html").exists() and not (tmp_path / "d.svg").exists()
+    proc = run("demo", "--dpi", "150")
+    assert proc.returncode == 2 and "--dpi" in proc.stderr
+    saved = tmp_path / "r.json"
+    assert run("fit", str(model), "--data", data, "--json", str(saved)).returncode == 0
+    proc = run("report", str(saved), "--dpi", "150", "--html", str(tmp_path / "again.html"))
+    assert proc.returncode == 2 and "--docx" in proc.stderr and not (tmp_path / "again.html").exists()
+
+
+def test_report_writes_the_files_alone_and_the_terminal_view_when_none_is_asked(tmp_path):
+    from cfa_tool.resources import resource_dir
+
+    model = tmp_path / "m.cfa"
+    model.write_text(MODEL)
+    saved = tmp_path / "r.json"
+    fit = run("fit", str(model), "--data", str(resource_dir("demo") / "rider_survey.csv"), "--json", str(saved),
+              "--html", str(tmp_path / "fit.html"))
+    assert fit.returncode == 0 and "Model fit" in fit.stdout  # fit: the report and a line per file
+    shown = run("report", str(saved))
+    assert shown.returncode == 0 and "Model fit" in shown.stdout
+    written = run("report", str(saved), "--html", str(tmp_path / "again.html"))
+    assert written.returncode == 0 and written.stdout.strip() == f"HTML report written to {tmp_path / 'again.html'}"
+
+
+def test_control_characters_in_a_model_are_shown_as_escapes_in_every_view(hs_data):
+    # a name and a comment holding an escape and a bell: Word's XML allows no control character (python-docx
+    # refuses one), and a terminal would act on it
+    result = cfa_tool.fit('name "a\x1bb"\n# note \x07 bell\nfactor visual: x1, x2, x3\nfactor textual: x4, x5, x6\n',
+                          hs_data)
+    report = fit_report(result)
+    word = _word_text(report_docx(report, 72))
+    for text in (result.summary(), report_html(report), report_markdown(report), word):
+        assert "\x1b" not in text and "\x07" not in text
+        assert "x1bb" in text and "x07 bell" in text
