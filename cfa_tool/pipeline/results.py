@@ -7,7 +7,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from cfa_tool.assessment.fit_indices import FitIndices
-from cfa_tool.assessment.modification import ModificationIndex
+from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
 from cfa_tool.inference.robust import RobustFit
 from cfa_tool.errors import EstimationError
@@ -230,7 +230,7 @@ class FitResult(Presentable):
     latent: tuple[str, ...]
     fit: FitIndices | None
     estimates: tuple[EstimateRow, ...]
-    modification_indices: tuple[ModificationIndex, ...]
+    modification_indices: ModificationIndices  # every one, largest first (rows built when read)
     groups: tuple[GroupResult, ...]
     robust: RobustFit | None = None
     group_column: str | None = None
@@ -301,9 +301,8 @@ class FitResult(Presentable):
         return self.group_column is not None
 
     # -- views
-    def reported_modification_indices(self) -> list[ModificationIndex]:
-        rows = [m for m in self.modification_indices if m.index >= self.mi_threshold]
-        return rows[: self.mi_top] if self.mi_top is not None else rows
+    def reported_modification_indices(self) -> ModificationIndices:
+        return self.modification_indices.reported(self.mi_threshold, self.mi_top)
 
     def largest_residual_correlation(self, group: int = 0) -> tuple[str, str, float] | None:
         r = self.groups[group].residual_correlations
@@ -364,7 +363,7 @@ class FitResult(Presentable):
                              "values": {k: {str(code): text for code, text in v.items()} for k, v in self.labels["values"].items()}}
         if self.exploratory:
             out["exploratory_blocks"] = [block.to_dict() for block in self.exploratory]
-        out["modification_indices"] = [clean(m.to_dict()) for m in self.reported_modification_indices()]
+        out["modification_indices"] = self.reported_modification_indices().dicts()
         out["warnings"] = list(self.warnings)
         return out
 
@@ -395,7 +394,7 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
 
         blocks = rotate_blocks(model, spec, theta if converged else None, parameter_covariance, unit_variance_items)
         inside = spec.exploratory_factors
-        modification_indices = [m for m in modification_indices if not inside.intersection(m.variables)]
+        modification_indices = modification_indices.without(frozenset(inside))
         # the block's unrotated loadings and factor covariances, and coefficients computed from them, describe an
         # arbitrary orientation: the rotated block (``exploratory``) stands in for them
         estimates = [r for r in estimates if not inside.intersection(r.variables)]
@@ -408,7 +407,7 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
         estimator=method.sentence(len(groups)), method=method, converged=converged, iterations=iterations,
         message=message, n_obs=n_obs, data=data, observed=observed, latent=latent, fit=fit, robust=robust,
-        estimates=tuple(estimates), modification_indices=tuple(modification_indices), groups=groups,
+        estimates=tuple(estimates), modification_indices=modification_indices, groups=groups,
         group_column=group_column, warnings=tuple(warnings), mi_threshold=options.mi_threshold, mi_top=options.mi_top,
         theta=theta, problems=tuple(problems), parameter_covariance=parameter_covariance,
         parameter_labels=tuple(parameter_labels), exploratory=blocks,

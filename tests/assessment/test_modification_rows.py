@@ -1,0 +1,56 @@
+"""The modification indices a fit holds as columns (assessment.modification.ModificationIndices): every candidate is
+kept, rows read one by one, the reported ones and the JSON rows agree with each other, largest first.  The values
+themselves are checked against published ones (tests/pipeline/test_holzinger_swineford_published.py: Holzinger &
+Swineford 1939, x9 on visual 36.411, x7-x8 34.145, recalled from memory) and against semopy elsewhere."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+import cfa_tool
+from cfa_tool.numerics.plain import clean
+from tests.conftest import THREE_FACTORS
+
+
+def test_rows_are_every_candidate_largest_first(hs_three):
+    rows = list(hs_three.modification_indices)
+    # 9 items x 3 factors - 9 loadings = 18 cross-loadings, 36 residual covariances (factor covariances are free)
+    assert len(rows) == len(hs_three.modification_indices) == 54
+    assert [r.index for r in rows] == sorted((r.index for r in rows), reverse=True)
+    assert rows[0] == hs_three.modification_indices[0] == hs_three.modification_indices[-54]
+    assert hs_three.modification_indices[:3] == tuple(rows[:3])
+    assert hs_three.modification_indices == rows
+    assert {r.kind for r in rows} == {"loading", "residual_covariance"}
+
+
+def test_reported_rows_and_their_json_agree(hs_data):
+    result = cfa_tool.fit(THREE_FACTORS, hs_data, mi_threshold=10, mi_top=4)
+    every = list(result.modification_indices)
+    reported = result.reported_modification_indices()
+    assert list(reported) == [r for r in every if r.index >= 10][:4]
+    assert len(reported) == 4
+    assert result.to_dict()["modification_indices"] == [clean(r.to_dict()) for r in reported]
+    assert all(math.isfinite(d["index"]) for d in reported.dicts())
+
+
+def test_groups_name_their_rows(hs_data):
+    result = cfa_tool.fit(THREE_FACTORS, hs_data, group="school")
+    rows = list(result.modification_indices)
+    assert {r.group for r in rows} == {"Grant-White", "Pasteur"}
+    assert len(rows) == 108
+    one = cfa_tool.fit(THREE_FACTORS, hs_data[hs_data["school"] == "Pasteur"])
+    # the pooled fit's score test of a group's entry is not the single-group one, but both find x9's cross-loading
+    pasteur = next(r for r in rows if r.group == "Pasteur" and r.variables == ("visual", "x9"))
+    assert pasteur.index > 3.84 and one.modification_indices[0].index > 3.84
+    assert np.isfinite([r.standardized_expected_change for r in rows]).all()
+
+
+def test_an_empty_set_reads_as_empty(hs_data):
+    result = cfa_tool.fit(THREE_FACTORS, hs_data, modification_indices=False)
+    assert len(result.modification_indices) == 0 and list(result.modification_indices) == []
+    assert result.to_dict()["modification_indices"] == []
+    with pytest.raises(IndexError):
+        result.modification_indices[0]
