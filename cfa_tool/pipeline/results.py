@@ -12,7 +12,7 @@ from cfa_tool.assessment.normality import Normality
 from cfa_tool.inference.robust import RobustFit
 from cfa_tool.errors import EstimationError
 from cfa_tool.method import FitMethod
-from cfa_tool.numerics.plain import clean
+from cfa_tool.numerics.plain import clean, plain_array
 from cfa_tool.views import Presentable, scorer
 
 DEFAULT_MI_THRESHOLD = 3.84  # chi-square(1) critical value at alpha = .05
@@ -198,7 +198,7 @@ class GroupResult:
 
     def diagnostics_dict(self) -> dict:
         return {
-            "normalized_residuals": clean(self.normalized_residuals.tolist()) if self.normalized_residuals is not None else None,
+            "normalized_residuals": plain_array(self.normalized_residuals) if self.normalized_residuals is not None else None,
             "unusual_cases": [clean(c.to_dict()) for c in self.unusual_cases],
             "influential_cases": [clean(c.to_dict()) for c in self.influential_cases],
         }
@@ -206,11 +206,11 @@ class GroupResult:
     def residuals_dict(self, observed: tuple[str, ...]) -> dict:
         out = {
             "variables": list(observed),
-            "covariance": clean((self.sample_covariance - self.implied_covariance).tolist()),
-            "correlation": clean(self.residual_correlations.tolist()),
+            "covariance": plain_array(self.sample_covariance - self.implied_covariance),
+            "correlation": plain_array(self.residual_correlations),
         }
         if self.implied_mean is not None:
-            out["mean"] = clean((self.sample_mean - self.implied_mean).tolist())
+            out["mean"] = plain_array(self.sample_mean - self.implied_mean)
         return out
 
 

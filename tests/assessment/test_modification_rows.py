@@ -54,3 +54,15 @@ def test_an_empty_set_reads_as_empty(hs_data):
     assert result.to_dict()["modification_indices"] == []
     with pytest.raises(IndexError):
         result.modification_indices[0]
+
+
+def test_plain_arrays_are_the_cleaned_lists():
+    """``plain_array`` (the residual matrices of the JSON) gives what cleaning the array's lists number by number gives:
+    NaN and infinities as None, every other number as a Python float."""
+    from cfa_tool.numerics.plain import plain_array
+
+    M = np.array([[1.5, np.nan, -0.0], [np.inf, 2.0, -np.inf]])
+    assert plain_array(M) == clean(M.tolist()) == [[1.5, None, -0.0], [None, 2.0, None]]
+    assert plain_array(np.eye(2)) == [[1.0, 0.0], [0.0, 1.0]]
+    assert all(type(v) is float for row in plain_array(M) for v in row if v is not None)  # not numpy floats
+    assert plain_array(np.array([0.5, np.nan])) == [0.5, None]
