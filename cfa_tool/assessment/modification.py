@@ -169,25 +169,28 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
     table = model.table
     if hasattr(likelihood, "candidate_scores"):  # complete data: every block from rank-two derivatives, in chunks
         H_tt = likelihood.evaluate(theta).information
-        parts = []
-        for g, weight in enumerate(likelihood.weights):
-            cands = candidates[g]
-            if not cands:
-                continue
-            codes, rows, cols = candidate_arrays(cands)
-            blocks = [likelihood.candidate_scores(theta, g, codes[sl], rows[sl], cols[sl])
-                      for sl in _chunks(len(cands))]
-            parts.append((g, cands, codes, rows, cols, model.matrices(theta, g),
-                          [(weight * d, weight * H_ct, weight * h_cc) for d, H_ct, h_cc in blocks]))
+
+        def blocks(g: int, weight: float, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray):
+            for sl in _chunks(len(codes)):  # made when used: one chunk's block of the information held at a time
+                d, H_ct, h_cc = likelihood.candidate_scores(theta, g, codes[sl], rows[sl], cols[sl])
+                yield weight * d, weight * H_ct, weight * h_cc
+
+        parts = [(g, weight, model.matrices(theta, g), blocks) for g, weight in enumerate(likelihood.weights)
+                 if candidates[g]]
     else:
         H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates)
     forms = inverse_quadratic_forms(H_tt)  # one factorisation for every group and chunk
     n = likelihood.n_total
     columns = []
-    for g, cands, codes, rows, cols, mats, blocks in parts:
-        d = np.concatenate([b[0] for b in blocks])
-        h_cc = np.concatenate([b[2] for b in blocks])
-        h = h_cc - np.concatenate([forms(H_ct.T) for _, H_ct, _ in blocks])
+    for g, weight, mats, blocks_of in parts:
+        codes, rows, cols = candidate_arrays(candidates[g])
+        d, h_cc, h_ct = [], [], []
+        for d_part, H_ct, h_cc_part in blocks_of(g, weight, codes, rows, cols):
+            d.append(d_part)
+            h_cc.append(h_cc_part)
+            h_ct.append(forms(H_ct.T))
+        d, h_cc = np.concatenate(d), np.concatenate(h_cc)
+        h = h_cc - np.concatenate(h_ct)
         ok = h > 1e-10 * np.maximum(h_cc, 1e-300)
         mi = np.where(ok, 0.5 * n * d**2 / np.where(ok, h, 1.0), np.nan)
         epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
@@ -211,7 +214,8 @@ def candidate_arrays(cands: list[Candidate]) -> tuple[np.ndarray, np.ndarray, np
 
 
 def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]]):
-    """The same blocks from full derivative matrices, in chunks (incomplete data)."""
+    """The same blocks from full derivative matrices, in chunks (incomplete data; every group's information is
+    summed before the blocks are used, so they are held)."""
     q = len(theta)
     H_tt = np.zeros((q, q))
     parts = []
@@ -229,7 +233,7 @@ def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candi
             c_sigma, c_mu = entry_derivatives(mats, codes[sl], rows[sl], cols[sl])
             blocks.append((weight * group.gradient(c_sigma, c_mu), weight * group.information(c_sigma, c_mu, t_sigma, t_mu),
                            weight * group.information_diagonal(c_sigma, c_mu)))
-        parts.append((g, cands, codes, rows, cols, mats, blocks))
+        parts.append((g, weight, mats, lambda *_, blocks=blocks: blocks))
     return H_tt, parts
 
 
