@@ -34,21 +34,18 @@ class EstimateRow:
     group: str | None = None
 
     def to_dict(self) -> dict:
-        return clean(
-            {
-                "kind": self.kind,
-                "variables": list(self.variables),
-                "group": self.group,
-                "free": self.free,
-                "estimate": self.estimate,
-                "se": self.se,
-                "z": self.z,
-                "p_value": self.p_value,
-                "ci95": list(self.ci95),
-                "standardized": self.standardized,
-                "standardized_factors_only": self.standardized_factors_only,
-            }
-        )
+        return estimate_dicts((self,))[0]
+
+
+def estimate_dicts(rows: tuple[EstimateRow, ...] | list[EstimateRow]) -> list[dict]:
+    """Estimate rows as JSON-ready dictionaries, their numbers checked at once (NaN and infinities as None)."""
+    if not rows:
+        return []
+    numbers = plain_array(np.array([(r.estimate, r.se, r.z, r.p_value, *r.ci95, r.standardized,
+                                     r.standardized_factors_only) for r in rows], dtype=float))
+    return [{"kind": r.kind, "variables": list(r.variables), "group": r.group, "free": r.free, "estimate": c[0],
+             "se": c[1], "z": c[2], "p_value": c[3], "ci95": [c[4], c[5]], "standardized": c[6],
+             "standardized_factors_only": c[7]} for r, c in zip(rows, numbers)]
 
 
 def _percent_below_all(share: float) -> str:
@@ -315,7 +312,7 @@ class FitResult(Presentable):
     def estimates_frame(self):
         import pandas as pd
 
-        return pd.DataFrame([row.to_dict() for row in self.estimates])
+        return pd.DataFrame(estimate_dicts(self.estimates))
 
     def to_dict(self) -> dict:
         out = {
@@ -329,7 +326,7 @@ class FitResult(Presentable):
             "data": self.data.to_dict(),
             "fit": clean(self.fit.to_dict()) if (self.fit is not None and self.converged) else None,
             "robust": clean(self.robust.to_dict()) if (self.robust is not None and self.converged) else None,
-            "estimates": [row.to_dict() for row in self.estimates],
+            "estimates": estimate_dicts(self.estimates),
         }
         if self.multigroup:
             out["group_column"] = self.group_column

@@ -1,4 +1,4 @@
-"""The modification indices a fit holds as columns (assessment.modification.ModificationIndices): every candidate is
+"""Rows of a fit's result built from arrays.  The modification indices a fit holds as columns (assessment.modification.ModificationIndices): every candidate is
 kept, rows read one by one, the reported ones and the JSON rows agree with each other, largest first.  The values
 themselves are checked against published ones (tests/pipeline/test_holzinger_swineford_published.py: Holzinger &
 Swineford 1939, x9 on visual 36.411, x7-x8 34.145, recalled from memory) and against semopy elsewhere."""
@@ -66,3 +66,18 @@ def test_plain_arrays_are_the_cleaned_lists():
     assert plain_array(np.eye(2)) == [[1.0, 0.0], [0.0, 1.0]]
     assert all(type(v) is float for row in plain_array(M) for v in row if v is not None)  # not numpy floats
     assert plain_array(np.array([0.5, np.nan])) == [0.5, None]
+
+
+def test_estimate_rows_json_is_each_field_cleaned(hs_data):
+    """The JSON's estimate rows (built from one array of their numbers) hold each row's fields as cleaning them one
+    by one gives, fixed parameters' missing standard errors as None, in the fields' order."""
+    result = cfa_tool.fit(THREE_FACTORS, hs_data, group="school")
+    rows = result.to_dict()["estimates"]
+    assert len(rows) == len(result.estimates)
+    for row, r in zip(rows, result.estimates):
+        assert row == clean({"kind": r.kind, "variables": list(r.variables), "group": r.group, "free": r.free,
+                             "estimate": r.estimate, "se": r.se, "z": r.z, "p_value": r.p_value, "ci95": list(r.ci95),
+                             "standardized": r.standardized, "standardized_factors_only": r.standardized_factors_only})
+        assert list(row) == ["kind", "variables", "group", "free", "estimate", "se", "z", "p_value", "ci95",
+                             "standardized", "standardized_factors_only"]
+    assert any(row["se"] is None for row in rows) and any(not row["free"] for row in rows)
