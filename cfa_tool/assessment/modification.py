@@ -17,7 +17,9 @@ the latter, gamma is a deviation of that group's value from the common one
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+from itertools import chain
 
 import numpy as np
 
@@ -49,6 +51,78 @@ class ModificationIndex:
 
 
 Candidate = tuple[str, tuple[str, ...], str, int, int]  # kind, variables, matrix, row, col
+
+
+@dataclass(frozen=True, eq=False)
+class ModificationIndices(Sequence):
+    """Every modification index of a fit, largest first, held as columns (a fit at 240 items has tens of thousands):
+    a row, :class:`ModificationIndex`, is built when it is read.  ``rows[k]`` is the position of row k among
+    ``candidates`` (every group's candidate entries in turn), ``groups[k]`` its group's position in ``labels``."""
+
+    candidates: tuple[Candidate, ...] = ()
+    labels: tuple[str | None, ...] = ()
+    rows: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=int))
+    groups: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=int))
+    index: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    expected_change: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    standardized_expected_change: np.ndarray = field(default_factory=lambda: np.zeros(0))
+
+    def __len__(self) -> int:
+        return len(self.rows)
+
+    def __getitem__(self, k):
+        if isinstance(k, slice):
+            return tuple(self._row(j) for j in range(len(self))[k])
+        return self._row(range(len(self))[k])
+
+    def __iter__(self):
+        return (self._row(j) for j in range(len(self)))
+
+    def __eq__(self, other) -> bool:
+        return tuple(self) == tuple(other) if isinstance(other, Sequence) else NotImplemented
+
+    __hash__ = None
+
+    def _row(self, j: int) -> ModificationIndex:
+        kind, variables, *_ = self.candidates[self.rows[j]]
+        return ModificationIndex(kind, variables, float(self.index[j]), float(self.expected_change[j]),
+                                 float(self.standardized_expected_change[j]), self.labels[self.groups[j]])
+
+    def where(self, keep: np.ndarray) -> ModificationIndices:
+        """The rows for which ``keep`` (one truth value per row) holds, in the same order."""
+        return ModificationIndices(self.candidates, self.labels, self.rows[keep], self.groups[keep], self.index[keep],
+                                   self.expected_change[keep], self.standardized_expected_change[keep])
+
+    def reported(self, threshold: float, top: int | None) -> ModificationIndices:
+        """The rows of at least ``threshold``, at most the ``top`` largest (all with None)."""
+        shown = self.where(self.index >= threshold)
+        return shown.where(slice(None, top)) if top is not None else shown
+
+    def without(self, names: frozenset[str]) -> ModificationIndices:
+        """The rows naming none of ``names``."""
+        return self.where(np.array([names.isdisjoint(self.candidates[r][1]) for r in self.rows.tolist()], dtype=bool))
+
+    def dicts(self) -> list[dict]:
+        """The rows as JSON-ready dictionaries (what ``ModificationIndex.to_dict`` gives, NaN and infinities as None)."""
+        out = []
+        columns = (self.index.tolist(), self.expected_change.tolist(), self.standardized_expected_change.tolist())
+        columns = tuple(c if np.isfinite(c).all() else [v if v - v == 0.0 else None for v in c] for c in columns)
+        for r, g, mi, epc, std in zip(self.rows.tolist(), self.groups.tolist(), *columns):
+            kind, variables, *_ = self.candidates[r]
+            out.append({"kind": kind, "variables": list(variables), "group": self.labels[g], "index": mi,
+                        "expected_change": epc, "standardized_expected_change": std})
+        return out
+
+
+def collected_indices(candidates: list[list[Candidate]], labels: tuple[str | None, ...], index: np.ndarray,
+                      expected_change: np.ndarray, standardized: np.ndarray, keep: np.ndarray) -> ModificationIndices:
+    """The rows of every group's candidates (``candidates[g]``, whose statistics are ``index`` etc. in that order, group
+    after group) for which ``keep`` holds, largest index first (ties in the candidates' order)."""
+    group = np.repeat(np.arange(len(candidates)), [len(c) for c in candidates])
+    kept = np.flatnonzero(keep)
+    order = kept[np.argsort(-index[kept], kind="stable")]
+    return ModificationIndices(tuple(chain.from_iterable(candidates)), tuple(labels), order, group[order], index[order],
+                               expected_change[order], standardized[order])
 CHUNK = 256  # candidates whose derivatives are held in memory at once
 
 
@@ -90,43 +164,43 @@ def constrained_entries(table: ParameterTable, kinds: tuple[str, ...], group: in
     ]
 
 
-def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]]) -> list[ModificationIndex]:
+def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]]) -> ModificationIndices:
     """MI and EPC for each group's candidate entries (``candidates[g]``)."""
     table = model.table
     if hasattr(likelihood, "candidate_scores"):  # complete data: every block from rank-two derivatives, in chunks
         H_tt = likelihood.evaluate(theta).information
-        parts = []
-        for g, weight in enumerate(likelihood.weights):
-            cands = candidates[g]
-            if not cands:
-                continue
-            codes, rows, cols = candidate_arrays(cands)
-            blocks = [likelihood.candidate_scores(theta, g, codes[sl], rows[sl], cols[sl])
-                      for sl in _chunks(len(cands))]
-            parts.append((g, cands, codes, rows, cols, model.matrices(theta, g),
-                          [(weight * d, weight * H_ct, weight * h_cc) for d, H_ct, h_cc in blocks]))
+
+        def blocks(g: int, weight: float, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray):
+            for sl in _chunks(len(codes)):  # made when used: one chunk's block of the information held at a time
+                d, H_ct, h_cc = likelihood.candidate_scores(theta, g, codes[sl], rows[sl], cols[sl])
+                yield weight * d, weight * H_ct, weight * h_cc
+
+        parts = [(g, weight, model.matrices(theta, g), blocks) for g, weight in enumerate(likelihood.weights)
+                 if candidates[g]]
     else:
         H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates)
     forms = inverse_quadratic_forms(H_tt)  # one factorisation for every group and chunk
-    out: list[ModificationIndex] = []
     n = likelihood.n_total
-    for g, cands, codes, rows, cols, mats, blocks in parts:
-        d = np.concatenate([b[0] for b in blocks])
-        h_cc = np.concatenate([b[2] for b in blocks])
-        h = h_cc - np.concatenate([forms(H_ct.T) for _, H_ct, _ in blocks])
+    columns = []
+    for g, weight, mats, blocks_of in parts:
+        codes, rows, cols = candidate_arrays(candidates[g])
+        d, h_cc, h_ct = [], [], []
+        for d_part, H_ct, h_cc_part in blocks_of(g, weight, codes, rows, cols):
+            d.append(d_part)
+            h_cc.append(h_cc_part)
+            h_ct.append(forms(H_ct.T))
+        d, h_cc = np.concatenate(d), np.concatenate(h_cc)
+        h = h_cc - np.concatenate(h_ct)
         ok = h > 1e-10 * np.maximum(h_cc, 1e-300)
         mi = np.where(ok, 0.5 * n * d**2 / np.where(ok, h, 1.0), np.nan)
         epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
         std_epc, _ = standardize_entries(mats, codes, rows, cols, epc)
-        label = table.groups[g] if table.multigroup else None
-        mi_l, epc_l, std_l = mi.tolist(), epc.tolist(), std_epc.tolist()
-        out.extend(
-            ModificationIndex(kind, variables, mi_l[k], epc_l[k], std_l[k], label)
-            for k, (kind, variables, *_rest) in enumerate(cands)
-            if ok[k]
-        )
-    out.sort(key=lambda r: -r.index)
-    return out
+        columns.append((mi, epc, std_epc, ok))
+    labels = tuple(table.groups) if table.multigroup else (None,) * table.n_groups
+    if not columns:
+        return ModificationIndices(labels=labels)
+    mi, epc, std_epc, ok = (np.concatenate(c) for c in zip(*columns))
+    return collected_indices(candidates, labels, mi, epc, std_epc, ok)
 
 
 def _chunks(count: int) -> list[slice]:
@@ -140,7 +214,8 @@ def candidate_arrays(cands: list[Candidate]) -> tuple[np.ndarray, np.ndarray, np
 
 
 def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]]):
-    """The same blocks from full derivative matrices, in chunks (incomplete data)."""
+    """The same blocks from full derivative matrices, in chunks (incomplete data; every group's information is
+    summed before the blocks are used, so they are held)."""
     q = len(theta)
     H_tt = np.zeros((q, q))
     parts = []
@@ -158,12 +233,12 @@ def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candi
             c_sigma, c_mu = entry_derivatives(mats, codes[sl], rows[sl], cols[sl])
             blocks.append((weight * group.gradient(c_sigma, c_mu), weight * group.information(c_sigma, c_mu, t_sigma, t_mu),
                            weight * group.information_diagonal(c_sigma, c_mu)))
-        parts.append((g, cands, codes, rows, cols, mats, blocks))
+        parts.append((g, weight, mats, lambda *_, blocks=blocks: blocks))
     return H_tt, parts
 
 
 def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: Objective,
-                         exogenous: tuple[str, ...]) -> list[ModificationIndex]:
+                         exogenous: tuple[str, ...]) -> ModificationIndices:
     table = model.table
     key = ("modification candidates", exogenous)  # fixed by the model: built at its first fit, kept for its refits
     if key not in model.derived:
@@ -172,7 +247,7 @@ def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: 
 
 
 def equality_score_tests(model: StructuredModel, theta: np.ndarray, likelihood: Objective,
-                         kinds: tuple[str, ...]) -> list[ModificationIndex]:
+                         kinds: tuple[str, ...]) -> ModificationIndices:
     """Score tests for releasing each cross-group equality of the given kinds, per group."""
     table = model.table
     return score_tests(model, theta, likelihood, [constrained_entries(table, kinds, g) for g in range(table.n_groups)])

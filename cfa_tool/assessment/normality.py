@@ -7,8 +7,8 @@ under multivariate normality (S with divisor N; Mardia 1970, 1974).
 The double sum never holds an N x N or N x p^2 array at once.  With whitened rows y_i it is either
 sum_abc T_abc^2 where T_abc = sum_i y_ia y_ib y_ic (N p^3 / 2 operations, as T is symmetric: its rows T_ab. for
 b >= a, one item a at a time; for few items and many rows: N > p^2) or
-the cubed Gram matrix Y Y' taken in blocks of rows, each pair of blocks once (N^2 p / 2 operations,
-for many items), whichever was timed faster for the shape.
+the cubed Gram matrix Y Y' taken in blocks of rows small enough to stay in the processor's cache, each pair of
+blocks once (N^2 p / 2 operations, for many items), whichever was timed faster for the shape.
 """
 
 from __future__ import annotations
@@ -37,6 +37,8 @@ class Normality:
 
 
 BLOCK = 1 << 20  # numbers held at once by the blocked sums (8 MB)
+GRAM_ROWS = 128  # rows per block of the Gram matrix: its blocks stay in the processor's cache (3x faster at p = 60
+# and N = 1,000 than blocks of a thousand rows; process time, one BLAS thread)
 
 
 def whitened_rows(rows: np.ndarray) -> tuple[np.ndarray, float]:
@@ -66,7 +68,7 @@ def _sum_of_cubed_products(Y: np.ndarray) -> float:
     n, p = Y.shape
     total = 0.0
     if n < p * p:  # Gram blocks (pairs of row blocks, off-diagonal blocks counted twice): timed faster here
-        size = max(1, min(n, BLOCK // n))
+        size = max(1, min(n, GRAM_ROWS, BLOCK // n))
         for start in range(0, n, size):
             stop = min(n, start + size)
             G = Y[start:stop] @ Y[start:].T

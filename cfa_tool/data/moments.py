@@ -38,11 +38,7 @@ def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) ->
     large for double precision."""
     selected = [frame[name] for name in names]
     if all(c.dtype.kind in "iuf" for c in selected):  # already numbers: copy them in (a sub-frame costs more)
-        out = np.empty((len(frame), len(names)))
-        for j, column in enumerate(selected):
-            # numpy columns copy straight in; nullable (extension) columns turn their missing marker into NaN
-            out[:, j] = column.to_numpy() if isinstance(column.dtype, np.dtype) else column.to_numpy(dtype=float, na_value=np.nan)
-        return out
+        return _copied(selected, len(frame))
     columns = []
     for name, column in zip(names, selected):
         kind = column.dtype.kind
@@ -58,6 +54,46 @@ def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) ->
             raise DataError(f"{source}: column '{printable(name)}' holds complex numbers; indicators must be real numbers")
         columns.append(_object_column(column, name, source))
     return np.column_stack(columns) if columns else np.zeros((len(frame), 0))
+
+
+def item_values(frame: pd.DataFrame, names: tuple[str, ...] | list[str]) -> np.ndarray | None:
+    """The named columns as one float array (NaN where an answer is missing) when every one holds numbers (integer
+    or float, numpy or nullable): what :func:`numeric_columns` returns for them, taken out of the frame once so that
+    the screening, the missing-data handling and the moments share it.  None when a column is missing or holds
+    anything else (the readers of the frame then name the column or the cell)."""
+    try:
+        selected = [frame[name] for name in names]
+    except KeyError:
+        return None
+    if not all(isinstance(c, pd.Series) and c.dtype.kind in "iuf" for c in selected):
+        return None
+    return _copied(selected, len(frame))
+
+
+@dataclass(frozen=True, eq=False)
+class ItemColumns:
+    """The item columns ``names`` of one data frame as one float array (:func:`item_values`; None when a column holds
+    anything but numbers), taken out once per fit and shared by its readers of that frame."""
+
+    frame: pd.DataFrame = field(repr=False)
+    names: tuple[str, ...]
+    values: np.ndarray | None = field(repr=False)
+
+    def of(self, frame: pd.DataFrame, names: tuple[str, ...] | list[str]) -> np.ndarray | None:
+        """The array when it holds exactly ``names`` of this very ``frame`` (else None: take them out again)."""
+        return self.values if frame is self.frame and tuple(names) == self.names else None
+
+
+def item_columns(frame: pd.DataFrame, names: tuple[str, ...] | list[str]) -> ItemColumns:
+    return ItemColumns(frame, tuple(names), item_values(frame, names))
+
+
+def _copied(columns: list[pd.Series], rows: int) -> np.ndarray:
+    out = np.empty((rows, len(columns)))
+    for j, column in enumerate(columns):
+        # numpy columns copy straight in; nullable (extension) columns turn their missing marker into NaN
+        out[:, j] = column.to_numpy() if isinstance(column.dtype, np.dtype) else column.to_numpy(dtype=float, na_value=np.nan)
+    return out
 
 
 def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
@@ -104,8 +140,10 @@ SMALLEST_SPREAD = 1e-100
 LARGEST_SPREAD_RATIO = 1e15  # between the largest and smallest standard deviation of the model's columns
 
 
-def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
-    values = numeric_columns(frame, names, source)
+def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, values: np.ndarray | None = None) -> np.ndarray:
+    """The named columns as floats (``values``: their :func:`item_values`, when already taken out), checked."""
+    if values is None:
+        values = numeric_columns(frame, names, source)
     if not np.isfinite(values).all():
         infinite = np.isinf(values)
         if infinite.any():
@@ -178,16 +216,18 @@ def row_numbers(frame: pd.DataFrame) -> np.ndarray:
 
 
 def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, group: str | None = None,
-                   missing: MissingData | str = MissingData.LISTWISE, weights: str | None = None) -> SampleMoments:
+                   missing: MissingData | str = MissingData.LISTWISE, weights: str | None = None,
+                   values: np.ndarray | None = None) -> SampleMoments:
     """Moments of the model variables: of the complete rows (listwise deletion), or, with
     ``missing='full-information'``, the EM estimates from every row with at least one answer
     (the rows themselves are kept for the casewise likelihood).  ``weights``: a column of row
     weights (checked beforehand, see cfa_tool.data.sample_design): weighted means and covariance,
-    divisor the sum of the weights."""
+    divisor the sum of the weights.  ``values``: the columns' :func:`item_values` when already taken out of
+    ``frame``."""
     file_source = source
     if group is not None:
         source = f"{source} (group {group})"
-    values = _numeric_rows(frame, names, source)
+    values = _numeric_rows(frame, names, source, values)
     w = pd.to_numeric(frame[weights]).to_numpy(dtype=float) if weights is not None else None
     p = values.shape[1]
     if missing == MissingData.FULL_INFORMATION:  # the member or its word

@@ -28,6 +28,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.moments import item_values
 from cfa_tool.errors import printable
 
 MIN_OTHERS = 10  # answers a judgement needs besides the value judged
@@ -96,20 +97,28 @@ class OddValues:
 
 
 def odd_values(frame: pd.DataFrame, columns: tuple[str, ...] | list[str],
-               row_numbers: np.ndarray | None = None) -> tuple[OddValues, ...]:
-    """What in ``columns`` of ``frame`` looks like no answers (see the module's rules), codes first."""
+               row_numbers: np.ndarray | None = None, values: np.ndarray | None = None) -> tuple[OddValues, ...]:
+    """What in ``columns`` of ``frame`` looks like no answers (see the module's rules), codes first.  ``values``:
+    the columns' ``data.moments.item_values`` when already taken out of ``frame``."""
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # values near the float limit judge as inf
-        return _odd_values(frame, columns, row_numbers)
+        return _odd_values(frame, columns, row_numbers, values)
 
 
-def _odd_values(frame: pd.DataFrame, columns, row_numbers) -> tuple[OddValues, ...]:
+def _odd_values(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[OddValues, ...]:
     numbers = np.arange(1, len(frame) + 1) if row_numbers is None else np.asarray(row_numbers)
-    names = [c for c in columns if c in frame.columns and pd.api.types.is_numeric_dtype(frame[c])
-             and not pd.api.types.is_complex_dtype(frame[c])]  # other columns are refused where they are read
-    if not names or len(frame) <= MIN_OTHERS:
+    if len(frame) <= MIN_OTHERS:
         return ()
-    X = frame[names].to_numpy(dtype=float, na_value=np.nan)  # infinite values are judged by no rule
-    flagged = [(j, value, code, ranges) for j in range(X.shape[1]) for value, code, ranges in _peeled(X[:, j])]
+    if X is None:
+        X = item_values(frame, columns)
+    if X is not None:  # every column holds numbers (the common case)
+        names = list(columns)
+    else:
+        names = [c for c in columns if c in frame.columns and pd.api.types.is_numeric_dtype(frame[c])
+                 and not pd.api.types.is_complex_dtype(frame[c])]  # other columns are refused where they are read
+        if not names:
+            return ()
+        X = frame[names].to_numpy(dtype=float, na_value=np.nan)  # infinite values are judged by no rule
+    flagged = [(j, value, code, ranges) for j in _may_stand_out(X) for value, code, ranges in _peeled(X[:, j])]
     if not flagged:  # the common case: only the rows-of-sums-or-means rule to apply
         return tuple(_row_findings(X, X, X, np.zeros(X.shape, dtype=bool), _summary_rows(X, X), names, numbers))
     codes: dict[float, list[int]] = {}  # code -> columns
@@ -158,6 +167,20 @@ def code_like(value: float) -> bool:
         return False
     digits = str(int(abs(value)))
     return value < 0 or set(digits) == {"9"}
+
+
+def _may_stand_out(X: np.ndarray) -> np.ndarray:
+    """The columns in which :func:`_peeled` can find a value, all columns at once: its first judgement at the top
+    needs the highest answer at least the range of the others beyond them (highest - next <= next - lowest fails
+    it), and at the bottom likewise; a column failing both has nothing to peel.  Comparisons with NaN keep a
+    column (``_peeled`` judges it)."""
+    finite = np.isfinite(X)
+    top = np.where(finite, X, -np.inf).max(axis=0, initial=-np.inf)
+    bottom = np.where(finite, X, np.inf).min(axis=0, initial=np.inf)
+    next_top = np.where(finite & (X < top), X, -np.inf).max(axis=0, initial=-np.inf)
+    next_bottom = np.where(finite & (X > bottom), X, np.inf).min(axis=0, initial=np.inf)
+    quiet = (top - next_top < next_top - bottom) & (next_bottom - bottom < top - next_bottom)
+    return np.flatnonzero(~quiet)
 
 
 def _peeled(x: np.ndarray) -> list[tuple[float, bool, float]]:

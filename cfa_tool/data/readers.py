@@ -14,11 +14,15 @@ import io
 import re
 from dataclasses import dataclass, field, replace
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import pandas as pd
 
 from cfa_tool.errors import DataError, printable
 from cfa_tool.input_files import check_input_path, input_bytes, utf16_text
+
+if TYPE_CHECKING:
+    from cfa_tool.data.moments import ItemColumns
 
 _DELIMITERS = ",;\t|"
 
@@ -39,6 +43,9 @@ class LoadedData:
     row_filters: tuple[str, ...] = ()
     #: values in the model's item columns that look like no answers (data.odd_values.OddValues), found on reading
     odd_values: tuple = ()
+    #: the model's item columns of ``frame`` as one float array, taken out once for the screening, the missing-data
+    #: handling and the moments (None before the model is known)
+    items: ItemColumns | None = None
 
 
 EXCEL_SUFFIXES = (".xlsx", ".xlsm")

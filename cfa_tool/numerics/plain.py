@@ -46,6 +46,14 @@ def clean(value):
     return value
 
 
+def plain_array(values: np.ndarray) -> list:
+    """A float array as JSON-ready (nested) lists, NaN and infinities as None: what ``clean(values.tolist())`` gives,
+    checked at once instead of number by number."""
+    values = np.asarray(values, dtype=float)
+    finite = np.isfinite(values)
+    return values.tolist() if finite.all() else np.where(finite, values, None).tolist()
+
+
 # what spreadsheets run as a formula at the start of a cell, also in the full-width forms that some
 # locales' spreadsheet programs accept
 _FORMULA_START = ("=", "+", "-", "@", "\t", "\r", "\uff1d", "\uff0b", "\uff0d", "\uff20")

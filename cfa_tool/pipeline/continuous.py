@@ -17,7 +17,7 @@ from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, normalized_residuals
 from cfa_tool.assessment.fit_indices import fit_indices, normal_theory_parts, srmr, srmr_value
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
-from cfa_tool.assessment.modification import modification_indices
+from cfa_tool.assessment.modification import ModificationIndices, modification_indices
 from cfa_tool.assessment.normality import mardia, whitened_rows
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
@@ -216,7 +216,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     fit = None
     robust = None
     inference = None
-    mis: list = []
+    mis = ModificationIndices()
     robust_wanted = options.test is FitTest.SATORRA_BENTLER
     yuan_bentler = options.test is FitTest.YUAN_BENTLER
     if robust_wanted and any(gm.rows is None for gm in likelihood.groups):

@@ -13,7 +13,7 @@ import pandas as pd
 
 from cfa_tool.data.groups import label_notes, split_moments
 from cfa_tool.data.matching import check_columns, check_declared_ranges
-from cfa_tool.data.moments import SampleMoments, missing_summary, row_numbers, sample_moments
+from cfa_tool.data.moments import SampleMoments, item_columns, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
@@ -153,22 +153,26 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         notes += filter_notes
     check_columns(spec, columns, loaded.source)
     check_declared_ranges(spec, frame, loaded.source)
+    items = item_columns(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
     return spec, replace(loaded, frame=frame, read_frame=loaded.frame if keep else None,
-                         row_filters=tuple(f.text for f in filters),
-                         odd_values=odd_values(frame, spec.observed_names, row_numbers(frame))), notes
+                         row_filters=tuple(f.text for f in filters), items=items,
+                         odd_values=odd_values(frame, spec.observed_names, row_numbers(frame), items.values)), notes
 
 
 def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,
                 reference_group: str | None = None, missing: MissingData | str = MissingData.LISTWISE,
-                design: DesignColumns | None = None) -> tuple[list[tuple[str | None, SampleMoments]], list[str]]:
+                design: DesignColumns | None = None,
+                values: np.ndarray | None = None) -> tuple[list[tuple[str | None, SampleMoments]], list[str]]:
     """Per-group (or single) sample moments of the model variables, with notes on rows left out;
-    weighted, and carrying each row's weight, cluster and stratum, under a sampling ``design``."""
+    weighted, and carrying each row's weight, cluster and stratum, under a sampling ``design``.  ``values``:
+    the model variables' columns of ``frame`` already taken out (data.moments.item_values)."""
     notes: list[str] = []
     weights = design.weights if design is not None else None
     if group is None:
         if reference_group is not None:
             raise OptionError("a reference group needs a group column")
-        groups = [(None, sample_moments(frame, spec.observed_names, source, missing=missing, weights=weights))]
+        groups = [(None, sample_moments(frame, spec.observed_names, source, missing=missing, weights=weights,
+                                        values=values))]
     else:
         _check_group_column(spec, group)
         groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing, weights)
@@ -366,12 +370,14 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
         gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
         return _described(replace(converged(result), warnings=tuple(notes) + result.warnings,
                                   missing_data=summary if gaps else None), spec, labels, ordinal_items)
-    fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
+    values = loaded.items.of(frame, spec.observed_names) if loaded.items is not None else None
+    fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values)
     notes = missing_notes + notes
     if design is not None:
         fit_options = design_test(fit_options, design)
     with blas_threads_for(len(spec.observed_names)):  # EM on thousands of rows: one thread beats several on small p
-        groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design)
+        groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design,
+                                          values)
     notes += group_notes
     result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     if design is not None:
@@ -437,9 +443,11 @@ def with_design(result: FitResult, design) -> FitResult:
                    estimator=f"{method.sentence(len(result.groups))}; {design.status()}", problems=problems)
 
 
-def rows_with_gaps(frame: pd.DataFrame, names: tuple[str, ...]) -> np.ndarray:
+def rows_with_gaps(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None) -> np.ndarray:
     """Which rows miss an answer on one of ``names`` (column by column: a sub-frame of the model variables costs
-    more)."""
+    more; ``values``: the columns already taken out, data.moments.item_values)."""
+    if values is not None:
+        return np.isnan(values).any(axis=1)
     gap = np.zeros(len(frame), dtype=bool)
     for name in names:
         values = frame[name].to_numpy()
@@ -448,7 +456,7 @@ def rows_with_gaps(frame: pd.DataFrame, names: tuple[str, ...]) -> np.ndarray:
 
 
 def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, ...],
-                            group: str | None) -> tuple[object, list[str]]:
+                            group: str | None, values: np.ndarray | None = None) -> tuple[object, list[str]]:
     """Rows with missing answers are kept by default: full-information ML when a model variable has
     a gap, listwise deletion only when asked for (or when nothing is missing, where the two agree)."""
     if fit_options.missing is not None:
@@ -456,7 +464,7 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     if fit_options.test is FitTest.YUAN_BENTLER:  # the robust test of full-information ML
         return replace(fit_options, missing=MissingData.FULL_INFORMATION), []
     robust = fit_options.test is FitTest.ROBUST
-    gap = rows_with_gaps(frame, names)
+    gap = rows_with_gaps(frame, names, values)
     rows = len(frame)
     if group is not None and group in frame.columns:
         labelled = frame[group].notna().to_numpy()

@@ -20,8 +20,8 @@ from cfa_tool.assessment.admissibility import solution_problems
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.fit_indices import fit_indices, srmr
 from cfa_tool.assessment.identification import check_information_rank
-from cfa_tool.assessment.modification import (ModificationIndex, candidate_arrays, candidate_entries,
-                                               least_squares_score_tests)
+from cfa_tool.assessment.modification import (ModificationIndices, candidate_arrays, candidate_entries,
+                                               collected_indices, least_squares_score_tests)
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.standardized import r_squared, standardize_entries
 from cfa_tool.errors import CfaError, OptionError
@@ -69,10 +69,10 @@ def _least_squares_fit(T: float, df: int, T_base: float, base_df: int, n: int, n
                        srmr=srmr_value, groups=groups, close_fit_test=False)
 
 
-def _modification_rows(candidates: list[list], mi: np.ndarray, epc: np.ndarray, mats_of, label_of) -> list[ModificationIndex]:
-    """ModificationIndex rows from per-candidate statistics, ``candidates[g]`` being group g's
+def _modification_rows(candidates: list[list], mi: np.ndarray, epc: np.ndarray, mats_of, label_of) -> ModificationIndices:
+    """The modification indices from per-candidate statistics, ``candidates[g]`` being group g's
     candidates and ``mi``, ``epc`` their statistics in that order."""
-    out = []
+    std = np.full(len(epc), np.nan)
     start = 0
     for g, cands in enumerate(candidates):
         if not cands:
@@ -80,11 +80,10 @@ def _modification_rows(candidates: list[list], mi: np.ndarray, epc: np.ndarray, 
         sl = slice(start, start + len(cands))
         start = sl.stop
         codes, rows, cols = candidate_arrays(cands)
-        std, _ = standardize_entries(mats_of(g), codes, rows, cols, epc[sl])
-        out.extend(ModificationIndex(kind, variables, float(m), float(c), float(z), label_of(g))
-                   for (kind, variables, *_), m, c, z in zip(cands, mi[sl], epc[sl], std) if np.isfinite(m))
-    out.sort(key=lambda r: -r.index)
-    return out
+        std[sl], _ = standardize_entries(mats_of(g), codes, rows, cols, epc[sl])
+    mi, epc = np.asarray(mi, dtype=float), np.asarray(epc, dtype=float)
+    return collected_indices(candidates, tuple(label_of(g) for g in range(len(candidates))), mi, epc, std,
+                             np.isfinite(mi))
 
 
 # ---------------------------------------------------------------- one group
@@ -233,7 +232,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     warnings.extend(_rows_notes(moments, order))
     fit = robust = inference = None
     sigma = final.implied_covariance()
-    modification: list[ModificationIndex] = []
+    modification = ModificationIndices()
     if opt.converged:
         D = ls.jacobian(theta)
         check_information_rank(D @ (D.T * weights[:, None]), table.free_labels)
@@ -378,7 +377,7 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting
     return OrdinalEstimation(table, model, objective, opt.theta, opt.value, opt.converged, opt.iterations, message)
 
 
-def ordinal_score_tests(est: OrdinalEstimation, candidates: list[list]) -> list[ModificationIndex]:
+def ordinal_score_tests(est: OrdinalEstimation, candidates: list[list]) -> ModificationIndices:
     """Robust score tests for each group's candidate entries (``candidates[g]``) of a multi-group ordinal fit."""
     obj, theta, table = est.objective, est.theta, est.table
     D, e, w, gamma = obj.stacked(theta)
@@ -448,7 +447,7 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
     for (label, _), m in zip(groups, moments):
         warnings.extend(_rows_notes(m, model_order, f" in group {label}"))
     fit = robust = inference = None
-    modification_rows: list[ModificationIndex] = []
+    modification_rows = ModificationIndices()
     shares = [None] * G
     srmrs = [None] * G
     if est.converged:

@@ -7,12 +7,12 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from cfa_tool.assessment.fit_indices import FitIndices
-from cfa_tool.assessment.modification import ModificationIndex
+from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
 from cfa_tool.inference.robust import RobustFit
 from cfa_tool.errors import EstimationError
 from cfa_tool.method import FitMethod
-from cfa_tool.numerics.plain import clean
+from cfa_tool.numerics.plain import clean, plain_array
 from cfa_tool.views import Presentable, scorer
 
 DEFAULT_MI_THRESHOLD = 3.84  # chi-square(1) critical value at alpha = .05
@@ -34,21 +34,18 @@ class EstimateRow:
     group: str | None = None
 
     def to_dict(self) -> dict:
-        return clean(
-            {
-                "kind": self.kind,
-                "variables": list(self.variables),
-                "group": self.group,
-                "free": self.free,
-                "estimate": self.estimate,
-                "se": self.se,
-                "z": self.z,
-                "p_value": self.p_value,
-                "ci95": list(self.ci95),
-                "standardized": self.standardized,
-                "standardized_factors_only": self.standardized_factors_only,
-            }
-        )
+        return estimate_dicts((self,))[0]
+
+
+def estimate_dicts(rows: tuple[EstimateRow, ...] | list[EstimateRow]) -> list[dict]:
+    """Estimate rows as JSON-ready dictionaries, their numbers checked at once (NaN and infinities as None)."""
+    if not rows:
+        return []
+    numbers = plain_array(np.array([(r.estimate, r.se, r.z, r.p_value, *r.ci95, r.standardized,
+                                     r.standardized_factors_only) for r in rows], dtype=float))
+    return [{"kind": r.kind, "variables": list(r.variables), "group": r.group, "free": r.free, "estimate": c[0],
+             "se": c[1], "z": c[2], "p_value": c[3], "ci95": [c[4], c[5]], "standardized": c[6],
+             "standardized_factors_only": c[7]} for r, c in zip(rows, numbers)]
 
 
 def _percent_below_all(share: float) -> str:
@@ -198,7 +195,7 @@ class GroupResult:
 
     def diagnostics_dict(self) -> dict:
         return {
-            "normalized_residuals": clean(self.normalized_residuals.tolist()) if self.normalized_residuals is not None else None,
+            "normalized_residuals": plain_array(self.normalized_residuals) if self.normalized_residuals is not None else None,
             "unusual_cases": [clean(c.to_dict()) for c in self.unusual_cases],
             "influential_cases": [clean(c.to_dict()) for c in self.influential_cases],
         }
@@ -206,11 +203,11 @@ class GroupResult:
     def residuals_dict(self, observed: tuple[str, ...]) -> dict:
         out = {
             "variables": list(observed),
-            "covariance": clean((self.sample_covariance - self.implied_covariance).tolist()),
-            "correlation": clean(self.residual_correlations.tolist()),
+            "covariance": plain_array(self.sample_covariance - self.implied_covariance),
+            "correlation": plain_array(self.residual_correlations),
         }
         if self.implied_mean is not None:
-            out["mean"] = clean((self.sample_mean - self.implied_mean).tolist())
+            out["mean"] = plain_array(self.sample_mean - self.implied_mean)
         return out
 
 
@@ -230,7 +227,7 @@ class FitResult(Presentable):
     latent: tuple[str, ...]
     fit: FitIndices | None
     estimates: tuple[EstimateRow, ...]
-    modification_indices: tuple[ModificationIndex, ...]
+    modification_indices: ModificationIndices  # every one, largest first (rows built when read)
     groups: tuple[GroupResult, ...]
     robust: RobustFit | None = None
     group_column: str | None = None
@@ -301,9 +298,8 @@ class FitResult(Presentable):
         return self.group_column is not None
 
     # -- views
-    def reported_modification_indices(self) -> list[ModificationIndex]:
-        rows = [m for m in self.modification_indices if m.index >= self.mi_threshold]
-        return rows[: self.mi_top] if self.mi_top is not None else rows
+    def reported_modification_indices(self) -> ModificationIndices:
+        return self.modification_indices.reported(self.mi_threshold, self.mi_top)
 
     def largest_residual_correlation(self, group: int = 0) -> tuple[str, str, float] | None:
         r = self.groups[group].residual_correlations
@@ -316,7 +312,7 @@ class FitResult(Presentable):
     def estimates_frame(self):
         import pandas as pd
 
-        return pd.DataFrame([row.to_dict() for row in self.estimates])
+        return pd.DataFrame(estimate_dicts(self.estimates))
 
     def to_dict(self) -> dict:
         out = {
@@ -330,7 +326,7 @@ class FitResult(Presentable):
             "data": self.data.to_dict(),
             "fit": clean(self.fit.to_dict()) if (self.fit is not None and self.converged) else None,
             "robust": clean(self.robust.to_dict()) if (self.robust is not None and self.converged) else None,
-            "estimates": [row.to_dict() for row in self.estimates],
+            "estimates": estimate_dicts(self.estimates),
         }
         if self.multigroup:
             out["group_column"] = self.group_column
@@ -364,7 +360,7 @@ class FitResult(Presentable):
                              "values": {k: {str(code): text for code, text in v.items()} for k, v in self.labels["values"].items()}}
         if self.exploratory:
             out["exploratory_blocks"] = [block.to_dict() for block in self.exploratory]
-        out["modification_indices"] = [clean(m.to_dict()) for m in self.reported_modification_indices()]
+        out["modification_indices"] = self.reported_modification_indices().dicts()
         out["warnings"] = list(self.warnings)
         return out
 
@@ -395,7 +391,7 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
 
         blocks = rotate_blocks(model, spec, theta if converged else None, parameter_covariance, unit_variance_items)
         inside = spec.exploratory_factors
-        modification_indices = [m for m in modification_indices if not inside.intersection(m.variables)]
+        modification_indices = modification_indices.without(frozenset(inside))
         # the block's unrotated loadings and factor covariances, and coefficients computed from them, describe an
         # arbitrary orientation: the rotated block (``exploratory``) stands in for them
         estimates = [r for r in estimates if not inside.intersection(r.variables)]
@@ -413,7 +409,7 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
         estimator=method.sentence(len(groups)), method=method, converged=converged, iterations=iterations,
         message=message, n_obs=n_obs, data=data, observed=observed, latent=latent, fit=fit, robust=robust,
-        estimates=tuple(estimates), modification_indices=tuple(modification_indices), groups=groups,
+        estimates=tuple(estimates), modification_indices=modification_indices, groups=groups,
         group_column=group_column, warnings=tuple(warnings), mi_threshold=options.mi_threshold, mi_top=options.mi_top,
         theta=theta, problems=tuple(problems), parameter_covariance=parameter_covariance,
         parameter_labels=tuple(parameter_labels), exploratory=blocks,

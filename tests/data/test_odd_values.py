@@ -114,3 +114,38 @@ def test_a_failed_estimation_names_the_values_first():
             raise EstimationError("the estimation did not converge")
     message = str(caught.value)
     assert message.index("-99") < message.index("--missing-codes -99") < message.index("did not converge")
+
+
+def test_the_columns_skipped_before_peeling_hold_nothing_to_peel():
+    """The screening peels only the columns whose highest or lowest answer lies at least the others' range beyond them
+    (``_may_stand_out``, all columns at once); on seeded data with codes, far values, gaps, infinities and ties,
+    every column it skips gives no finding when peeled one by one."""
+    from cfa_tool.data.odd_values import _may_stand_out, _peeled
+
+    rng = np.random.default_rng(20)
+    skipped = 0
+    for _ in range(400):
+        n, p = int(rng.integers(5, 60)), int(rng.integers(1, 6))
+        X = np.round(rng.normal(3, 1, size=(n, p)), int(rng.integers(0, 3)))
+        for _ in range(int(rng.integers(0, 4))):
+            X[rng.integers(0, n), rng.integers(0, p)] = rng.choice([-99, 999, 9, 55, np.nan, np.inf, -np.inf, 1e308])
+        with np.errstate(over="ignore", invalid="ignore"):
+            kept = set(_may_stand_out(X).tolist())
+            for j in set(range(p)) - kept:
+                skipped += 1
+                assert _peeled(X[:, j]) == [], (X[:, j], j)
+    assert skipped > 200  # the shortcut is taken (most columns have nothing to peel)
+
+
+def test_the_frame_read_once_gives_the_findings_of_the_frame():
+    """Findings from the model's columns taken out once (data.moments.item_values, as fit does) equal those read
+    from the frame, for numpy and nullable integer columns."""
+    from cfa_tool.data.moments import item_values
+
+    frame = _likert(3)
+    frame.loc[[4, 17, 250], "x3"] = -99
+    frame["x5"] = frame["x5"].astype("Int64")
+    frame.loc[7, "x5"] = pd.NA
+    columns = list(frame.columns)
+    assert odd_values(frame, columns, None, item_values(frame, columns)) == odd_values(frame, columns) != ()
+    assert item_values(frame.assign(x1=frame["x1"].astype(str)), columns) is None  # text: the frame's own path

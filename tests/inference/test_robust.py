@@ -75,7 +75,7 @@ def test_mardia_against_direct_double_sum():
     assert result.skewness_df == 10 and result.kurtosis_expected == 15
 
 
-@pytest.mark.parametrize("n, p", [(30, 6), (200, 3)])
+@pytest.mark.parametrize("n, p", [(30, 6), (200, 3), (300, 20)])
 def test_mardia_in_blocks_against_direct_double_sum(monkeypatch, n, p):
     # 30 rows of 6 items take the blocked Gram-matrix path, 200 rows of 3 the blocked third-moment path;
     # a small block size makes several blocks of each (the definition of b1 and b2: Mardia 1970)
