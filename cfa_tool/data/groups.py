@@ -32,6 +32,7 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
         only = f" ('{labels[0]}')" if labels else ""
         raise DataError(f"{source}: the group column '{column}' has only {len(labels)} group{only}; a multi-group analysis needs at least two")
     if reference is not None:
+        reference = label_text(reference) if isinstance(reference, str) else reference  # read as the labels are
         if reference not in labels:
             raise OptionError(f"{source}: '{reference}' is not a group of column '{column}' (groups: {', '.join(labels)})")
         labels.remove(reference)
@@ -42,11 +43,18 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
 _label = label_text
 
 
-def label_notes(frame: pd.DataFrame, column: str) -> list[str]:
-    """Notes on group labels that differed only by spaces at their ends or Unicode form and were read as one."""
-    return [f"in the group column '{printable(column)}', {' and '.join(repr(printable(t)) for t in texts)} were read as "
-            f"one group '{printable(label)}' (spaces at the ends and Unicode forms are ignored)"
-            for label, texts in merged_labels(frame[column].dropna())]
+def label_notes(frame: pd.DataFrame, column: str, shown: int = 5) -> list[str]:
+    """One note naming the group labels that differed only by spaces at their ends or Unicode form and were read
+    as one group (none when no labels were merged); every command with groups gives it through
+    :func:`cfa_tool.pipeline.inputs.moments_for` or :func:`cfa_tool.pipeline.inputs.ordinal_groups`."""
+    merged = merged_labels(frame[column].dropna())
+    if not merged:
+        return []
+    listed = "; ".join(f"{' and '.join(repr(printable(t)) for t in texts)} as '{printable(label)}'"
+                       for label, texts in merged[:shown])
+    more = f"; and {len(merged) - shown} more" if len(merged) > shown else ""
+    return [f"in the group column '{printable(column)}', labels that differ only by spaces at their ends or by Unicode "
+            f"form were read as one group: {listed}{more}"]
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

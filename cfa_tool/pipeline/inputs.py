@@ -690,12 +690,12 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         check_counting_rule(spec, build_parameter_table(spec))
         return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0,
                            {name: 1.0 for name in spec.observed_names}, None)
-    spec, loaded, _ = read_inputs_with_notes(model, data, **read_options)
+    spec, loaded, notes = read_inputs_with_notes(model, data, **read_options)
     frame, source = loaded.frame, loaded.source
     loaded = analysed_odd_values(loaded, spec, group)
-    notes: list[str] = []
     if design is not None:
-        frame, notes = check_design(frame, design, spec.observed_names, group, source)
+        frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
+        notes += design_notes
     ordinal_items = ordinal_items_of(spec, None)
     if ordinal_items:  # the same data checks as the fit (categories, empty cells in groups, duplicates)
         if group is not None:
@@ -706,7 +706,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
             ordinal_moments(frame, spec.observed_names, source,
                             frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
-    groups, _ = moments_for(spec, frame, source, group, reference_group, missing=options.missing, design=design)
+    groups, group_notes = moments_for(spec, frame, source, group, reference_group, missing=options.missing, design=design)
+    notes += group_notes
     labels = tuple(label for label, _ in groups) if group is not None else None
     table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)
     check_counting_rule(spec, table)

@@ -76,7 +76,7 @@ class CheckResult(Presentable):
     ordinal: bool = False  # ordinal items: rows with gaps are used through pairwise present rows
     design: object = None  # the sampling design (data.sample_design.SampleDesign) when one is given
     caution: str | None = None  # too few clusters for cluster-robust standard errors (the fit's Problem)
-    notes: tuple[str, ...] = ()  # rows the design leaves out (weight 0)
+    notes: tuple[str, ...] = ()  # row filters, rows the design leaves out (weight 0), group labels read as one
     #: values in the item columns that look like no answers (assessment.admissibility.Problem): first in every view
     problems: tuple = ()
     without_group: int = 0  # rows without a group label (left out)
@@ -106,7 +106,7 @@ class CheckResult(Presentable):
             lines.append(self.design.status()[0].upper() + self.design.status()[1:] + "; "
                          + ("sandwich standard errors and a scaled test in the fit" if self.design.columns.robust else
                             "each row counted as often as its weight in the fit") + ".")
-            lines.extend(f"Note: {note}." for note in self.notes)
+        lines.extend(f"Note: {note}." for note in self.notes)
         return "\n".join(lines)
 
     def to_dict(self) -> dict:
@@ -115,7 +115,8 @@ class CheckResult(Presentable):
                 "rows_with_gaps": self.with_gaps, "rows_without_answers": self.empty, "coverage": dict(self.coverage),
                 "groups": list(self.groups) if self.groups else None,
                 "design": self.design.to_dict() if self.design is not None else None, "caution": self.caution,
-                "rows_without_group": self.without_group, "problems": [p.to_dict() for p in self.problems]}
+                "rows_without_group": self.without_group, "problems": [p.to_dict() for p in self.problems],
+                "notes": list(self.notes)}
 
 
 @dataclass(frozen=True)
