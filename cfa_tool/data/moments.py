@@ -241,19 +241,27 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data)
 
 
-def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20) -> dict:
+def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20,
+                    frequency_weights: str | None = None) -> dict:
     """Coverage of each variable and the most frequent missing-data patterns, each named by the items its
-    rows did not answer (an empty list: complete rows)."""
+    rows did not answer (an empty list: complete rows).  ``frequency_weights``: a column of counts (checked
+    beforehand); each row then counts as often as its weight, as it does in N, and the summary names the column."""
     observed = frame[list(names)].notna().to_numpy()
-    coverage = {name: float(v) for name, v in zip(names, observed.mean(axis=0))}
+    counts = (np.ones(len(frame)) if frequency_weights is None
+              else pd.to_numeric(frame[frequency_weights]).to_numpy(dtype=float))
+    total = counts.sum()
+    coverage = {name: float(v) for name, v in zip(names, counts @ observed / total if total else observed.mean(axis=0))}
+    weighted = {"counted_by_weights": frequency_weights} if frequency_weights is not None else {}
     if observed.all():
-        return {"coverage": coverage, "patterns": [{"not_answered": [], "rows": int(len(observed))}],
-                "n_patterns": 1 if len(observed) else 0}
-    patterns, counts = np.unique(observed, axis=0, return_counts=True)
-    order = np.argsort(-counts, kind="stable")[:limit]
+        return {"coverage": coverage, "patterns": [{"not_answered": [], "rows": int(round(total))}],
+                "n_patterns": 1 if len(observed) else 0, **weighted}
+    patterns, which = np.unique(observed, axis=0, return_inverse=True)
+    sums = np.bincount(which.ravel(), weights=counts, minlength=len(patterns))
+    order = np.argsort(-sums, kind="stable")[:limit]
     return {
         "coverage": coverage,
         "patterns": [{"not_answered": [name for name, answered in zip(names, patterns[k]) if not answered],
-                      "rows": int(counts[k])} for k in order],
+                      "rows": int(round(sums[k]))} for k in order],
         "n_patterns": int(len(patterns)),
+        **weighted,
     }

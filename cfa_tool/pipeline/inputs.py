@@ -362,7 +362,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
             result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator,
                                   design)
         labels = tuple(g.label for g in result.groups) if group is not None else None
-        summary = missing_summary(_labelled(frame, group), spec.observed_names)  # as for continuous items
+        summary = missing_summary(_labelled(frame, group), spec.observed_names,  # as for continuous items
+                                  frequency_weights=counted_by(design))
         gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
         return _described(replace(converged(result), warnings=tuple(notes) + result.warnings,
                                   missing_data=summary if gaps else None), spec, labels, ordinal_items)
@@ -379,7 +380,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     analysed = _labelled(frame, group)
     every_row_complete = (sum(m.n_obs for _, m in groups) == len(analysed)
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
-    summary = None if every_row_complete else missing_summary(analysed, spec.observed_names)
+    summary = None if every_row_complete else missing_summary(analysed, spec.observed_names,
+                                                              frequency_weights=counted_by(design))
     labels = {
         "variables": {k: v for k, v in loaded.variable_labels.items() if k in spec.observed_names},
         "values": {k: v for k, v in loaded.value_labels.items() if k in spec.observed_names},
@@ -389,6 +391,13 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                                                                       or not all(summary["coverage"].values())) else None,
                      labels=labels if labels["variables"] or labels["values"] else None)
     return _described(result, spec, tuple(label for label, _ in groups) if group is not None else None)
+
+
+def counted_by(design: DesignColumns | None) -> str | None:
+    """The column of frequency weights, by which rows are counted (in N and in the missing-data table), if any."""
+    if design is None or design.weights is None or design.kind is not WeightKind.FREQUENCY:
+        return None
+    return design.weights
 
 
 def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
