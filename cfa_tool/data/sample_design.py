@@ -244,11 +244,19 @@ def _data_rows(frame: pd.DataFrame) -> np.ndarray:
 
 def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.ndarray) -> np.ndarray:
     name = columns.weights
-    values = pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=float)
     where = f"{source}: weights column '{printable(name)}', data row"
+    column = frame[name]
+    truth = (np.ones(len(column), dtype=bool) if column.dtype.kind == "b" or str(column.dtype) == "boolean"
+             else column.map(lambda v: isinstance(v, (bool, np.bool_))).to_numpy(dtype=bool))
+    truth = truth & column.notna().to_numpy()
+    if truth.any():  # TRUE/FALSE would be read as 1/0: weights must be numbers
+        first = int(np.argmax(truth))
+        raise DataError(f"{where} {rows[first]}: holds {str(column.iloc[first]).upper()}, a TRUE/FALSE value; weights "
+                        f"must be numbers (is it the right column?)")
+    values = pd.to_numeric(column, errors="coerce").to_numpy(dtype=float)
     text = np.isnan(values) & frame[name].notna().to_numpy()
     if text.any():
-        raise DataError(f"{where} {rows[np.argmax(text)]}: '{printable(str(frame[name].iloc[np.argmax(text)]))[:40]}' "
+        raise DataError(f"{where} {rows[np.argmax(text)]}: '{printable(str(column.iloc[np.argmax(text)]))[:40]}' "
                         f"is not a number")
     for bad, what in ((np.isnan(values), "no weight (every row needs one; leave such rows out with --keep)"),
                       (np.isinf(values), "an infinite weight"), (values < 0, "a negative weight")):
