@@ -232,6 +232,30 @@ def _numeric_columns(frame: pd.DataFrame) -> tuple[str, ...]:
                  pd.api.types.is_bool_dtype(frame[c]))
 
 
+#: words that name a column's part in the data other than answers (the sampling design, ids, groups): a column
+#: whose name is one of them, or has one as a word of its own ('final_weight', 'respondent_id'; 'w1' has none), is
+#: left out of explore's default items
+COLUMN_ROLE_WORDS = {
+    "weights": ("weight", "weights", "wt", "wgt", "w", "fw", "pw", "pweight", "fweight", "freq", "frequency"),
+    "clusters": ("cluster", "clusters", "psu"),
+    "strata": ("stratum", "strata"),
+    "ids": ("id", "ids", "identifier"),
+    "groups": ("group", "grp"),
+}
+_ROLE_OF_WORD = {word: role for role, words in COLUMN_ROLE_WORDS.items() for word in words}
+
+
+def column_role(name: str) -> str | None:
+    """The part a column plays by its name (a key of COLUMN_ROLE_WORDS), or None for a column that may hold
+    answers.  The name is split into words at spaces, underscores, dots and hyphens."""
+    import re
+
+    for word in re.split(r"[\s_.\-]+", name.casefold()):
+        if word in _ROLE_OF_WORD:
+            return _ROLE_OF_WORD[word]
+    return None
+
+
 def _looks_like_row_ids(column: pd.Series) -> bool:
     """A column whose values are all different whole numbers: an id or a row number, not answers to an item."""
     values = column.dropna().to_numpy()
@@ -258,7 +282,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
     ``items``: column names, or text 'a, b, c' with 'a..b' for a span of columns (default: every column that
-    holds numbers); ``factors``: a whole number, or None / 'auto' for the recommended number; ``rotation``:
+    holds numbers, except row numbers or ids and columns whose names say they are weights, clusters, strata, ids
+    or groups, see :func:`column_role`); ``factors``: a whole number, or None / 'auto' for the recommended number; ``rotation``:
     varimax, quartimin (default), oblimin, geomin, promax, target (with ``target``: a matrix with NaN where
     unspecified, or the path of a target file, exploration.target_file, whose columns give the number of
     factors) or none; ``extraction``: maximum-likelihood (default) or least-squares; ``ordinal``: 'all' or
@@ -291,10 +316,14 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     if chosen is None:
         numeric = _numeric_columns(frame)
         ids = [c for c in numeric if _looks_like_row_ids(frame[c])]
-        chosen = tuple(c for c in numeric if c not in ids)
+        roles = [c for c in numeric if c not in ids and column_role(c) is not None]
+        chosen = tuple(c for c in numeric if c not in ids and c not in roles)
         notes.append(f"Items: every column of {source} that holds numbers ({len(chosen)}); choose them with --items."
-                     + (f" Left out as row numbers or ids (every value a different whole number): {', '.join(ids)}."
-                        if ids else "")
+                     + (f" Left out as row numbers or ids (every value a different whole number): "
+                        f"{', '.join(printable(c) for c in ids)}." if ids else "")
+                     + (" Left out by their names, as columns of the sampling design, ids or groups rather than "
+                        "answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
+                        + " (name them in --items to explore them)." if roles else "")
                      + " Check that no other column (age, grade, a code) is among the items.")
     requested = _factor_choice(factors)
     rotation_method = options.choice(RotationMethod, rotation, "the rotation")
