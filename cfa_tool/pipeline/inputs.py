@@ -633,7 +633,10 @@ def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
     elif ordinal:
         for name in ([ordinal] if isinstance(ordinal, str) else ordinal):
             if name not in spec.observed_names:
-                raise OptionError(f"'{name}' is given as ordinal but is not an indicator in the model")
+                from cfa_tool.suggest import one_by_one
+
+                raise OptionError(f"'{printable(name)}' is given as ordinal but is not an indicator in the model"
+                                  + one_by_one(name))
             items.add(name)
     return items
 

@@ -205,8 +205,12 @@ def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str
         ends = piece.split("..") if ".." in piece and piece not in columns else [piece]
         for end in ends:
             if end not in columns:
-                from cfa_tool.suggest import close_names
+                from cfa_tool.suggest import close_names, dotted_span
 
+                span = dotted_span(end)
+                if span is not None and all(e in columns for e in span.split("..")):
+                    raise OptionError(f"items: {source} has no column '{printable(end)}'; a span of columns is "
+                                      f"written with two dots: '{printable(span)}'")
                 guess = close_names(end, columns)
                 raise OptionError(f"items: {source} has no column '{printable(end)}'"
                                   + (f"; did you mean '{printable(guess[0])}'?" if guess else ""))
@@ -385,7 +389,10 @@ def _ordinal_items(ordinal, items: tuple[str, ...]) -> tuple[str, ...]:
     names = [ordinal] if isinstance(ordinal, str) else list(ordinal)
     for name in names:
         if name not in items:
-            raise OptionError(f"'{printable(name)}' is given as ordinal but is not one of the items explored")
+            from cfa_tool.suggest import one_by_one
+
+            raise OptionError(f"'{printable(name)}' is given as ordinal but is not one of the items explored"
+                              + one_by_one(name))
     return tuple(names)
 
 
