@@ -6,6 +6,7 @@ normal-theory ML fitting (Bollen 1989, ch. 4).
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -90,11 +91,27 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
                 raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
             shown = printable(text if len(text) <= 40 else text[:37] + "...")
             raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "
-                            f"data row {row + 1}); indicators must be numbers")
+                            f"data row {row + 1}); indicators must be numbers: {_recoding(text)}")
         out[row] = number
     return out
 
 
+
+
+#: an answer written as its code and its label: '5 - strongly agree', '2: rarely', '1) never'
+_CODE_AND_LABEL = re.compile(r"\s*([-+]?\d+)\s*[-\u2013\u2014:=.)]\s*\D.*", re.DOTALL)
+
+
+def _recoding(text: str) -> str:
+    """How to turn a text answer into the number an indicator needs."""
+    coded = _CODE_AND_LABEL.fullmatch(text)
+    if coded:
+        return (f"keep only the number before each label (here {coded.group(1)}) in every cell of the column, or "
+                f"export the answers' values rather than their labels")
+    if any(ch.isdigit() for ch in text):  # a number mistyped, most likely
+        return "correct the cell, or leave it empty for no answer"
+    return ("recode the answers as numbers (such as 1 for the lowest to 5 for the highest) in every cell of the column, "
+            "or export the answers' values rather than their labels; leave a cell empty for no answer")
 
 
 #: Numbers beyond these magnitudes cannot be analysed in double precision (their squares and
