@@ -291,6 +291,13 @@ def odd_value_problems(loaded: LoadedData) -> tuple:
                  for odd in loaded.odd_values)
 
 
+def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> LoadedData:
+    """``frame`` as loaded data holding the values among the columns ``names`` that look like no answers, for the
+    commands that read their data without :func:`read_inputs_with_notes` (replicate, explore): their cautions
+    (:func:`odd_value_problems`) and :func:`odd_values_named` then work as for every other command."""
+    return LoadedData(frame, source, odd_values=odd_values(frame, tuple(names), row_numbers(frame)))
+
+
 def with_odd_values(result, loaded: LoadedData):
     """``result`` (anything with ``problems``) with the cautions of :func:`odd_value_problems` before its own:
     the fit is not refused, since the user may know better."""

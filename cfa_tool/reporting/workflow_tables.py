@@ -336,7 +336,8 @@ def replication_report(replications) -> Report:
                      "correlations with those the calibration estimates imply, and the cross-validation index is the "
                      "least-squares discrepancy with the validation sample's weights.")
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
-    return Report(ResultKind.REPLICATE, title, _notice(problems), (), tuple(tables), tuple(notes),
+    cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems))  # the data's (halves: once)
+    return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), (), tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE))
 
 

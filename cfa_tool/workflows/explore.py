@@ -77,6 +77,8 @@ class ExploreResult(Presentable):
     split: SplitHalves | None = None
     notes: tuple[str, ...] = ()
     order: tuple[int, ...] = field(default=(), repr=False)  # items sorted by factor, then by loading
+    #: values in the item columns that look like no answers (assessment.admissibility.Problem): first in every view
+    data_problems: tuple = ()
 
     @property
     def factors(self) -> int:
@@ -93,7 +95,7 @@ class ExploreResult(Presentable):
     def problems(self) -> list[str]:
         """What makes the chosen solution doubtful, in plain words (every view shows these first)."""
         ex = self.exploration
-        out = []
+        out = [p.line() for p in self.data_problems]
         if not ex.solution.converged:
             out.append(f"The {ex.factors}-factor extraction did not converge; its loadings are not a solution.")
         if ex.solution.at_bound:
@@ -122,6 +124,7 @@ class ExploreResult(Presentable):
         pa = count.parallel
         out = {
             "problems": self.problems(),
+            "data_problems": [p.to_dict() for p in self.data_problems],
             "data": {"source": self.source, "rows_read": self.rows_read, "rows_used": ex.data.n_obs,
                      "correlations": ex.data.kind.value},
             "items": list(self.items),
@@ -350,6 +353,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
             raise OptionError(f"--factors asks for {requested} factors, and the target file {target_file.source} has "
                               f"{len(target_file.factors)} factor columns")
     ordinal_items = _ordinal_items(ordinal, chosen)
+    # values that look like no answers among the rows read (both halves of a split): first in every view
+    data_problems = api.odd_value_problems(api.screened(frame, tuple(chosen), source))
     halves = None
     if split is not None:
         split = options.seed(split)
@@ -378,7 +383,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     if halves is not None:
         split_result = _confirm(exploration, halves, split, source, ordinal_items)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
-                         sorted_items(exploration))
+                         sorted_items(exploration), data_problems)
 
 
 def _ordinal_items(ordinal, items: tuple[str, ...]) -> tuple[str, ...]:

@@ -99,9 +99,31 @@ def test_compare_and_scores_caution_first(tmp_path, capsys):
     (["cutoffs", "--replications", "20", "--seed", "1"], "Model-specific fit cutoffs"),
     (["invariance", "--group-column", "district"], "Measurement invariance across"),
     (["align", "--group-column", "district"], "Alignment across"),
-], ids=["bootstrap", "cutoffs", "invariance", "align"])
+    (["replicate", "--seed", "2"], "Replication in two random halves"),
+], ids=["bootstrap", "cutoffs", "invariance", "align", "replicate"])
 def test_every_command_that_reads_the_data_cautions_first(command, title, tmp_path, capsys):
     data = _with_code(tmp_path)
     code, out, _ = _run([command[0], MODEL, "--data", data, *command[1:]], capsys)
     out = " ".join(out.replace("│", " ").split())
     assert code == 0 and out.index("The item column clean of coded.csv holds the value -99") < out.index(title)
+
+
+def test_explore_and_replicate_of_two_files_caution_first(tmp_path, capsys):
+    data = _with_code(tmp_path)
+    code, out, err = _run(["explore", "--data", data, "--json", tmp_path / "explore.json"], capsys)
+    out = " ".join(out.replace("┃", " ").split())
+    assert code == 0, err
+    assert out.index("The item column clean of coded.csv holds the value -99") < out.index("Exploratory factor analysis")
+    saved = json.loads((tmp_path / "explore.json").read_text())
+    assert saved["data_problems"][0]["kind"] == "values that look like no answers"
+    assert "data rows 3, 31, 100" in saved["problems"][0]
+    code, out, err = _run(["replicate", MODEL, "--calibration", data, "--validation", DEMO, "--json",
+                           tmp_path / "replicate.json"], capsys)
+    out = " ".join(out.replace("│", " ").split())
+    assert code == 0, err
+    assert out.index("The item column clean of coded.csv holds the value -99") < out.index("Replication")
+    saved = json.loads((tmp_path / "replicate.json").read_text())
+    assert len(saved["replications"][0]["data_problems"]) == 1  # the calibration file's; the validation file has none
+    code, out, err = _run(["replicate", MODEL, "--calibration", data, "--validation", DEMO, "--missing-codes", "-99"],
+                          capsys)
+    assert code == 0 and "holds the value -99" not in out  # the advice's option is there
