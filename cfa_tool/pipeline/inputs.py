@@ -732,11 +732,15 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     check_counting_rule(spec, table)
     sample_design = design_summary(frame, design, [m for _, m in groups]) if design is not None else None
     answered = _labelled(frame, group)[list(spec.observed_names)].notna()
-    complete = int(answered.all(axis=1).sum())
+    every_item = answered.all(axis=1).to_numpy()
+    # complete rows that are complete only by values that look like no answers (the cautions' rows)
+    odd_rows = {row for odd in loaded.odd_values for row in odd.rows}
+    odd_complete = int(np.isin(row_numbers(answered)[every_item], list(odd_rows)).sum()) if odd_rows else 0
+    complete = int(every_item.sum()) - odd_complete
     empty = int((~answered.any(axis=1)).sum())
     coverage = {name: float(v) for name, v in answered.mean(axis=0).items()} if len(answered) else {}
-    return CheckResult(spec, source, len(answered), complete, len(answered) - complete - empty, empty, coverage,
-                       labels, bool(ordinal_items), sample_design,
+    return CheckResult(spec, source, len(answered), complete, len(answered) - complete - odd_complete - empty, empty,
+                       coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None, tuple(notes),
-                       odd_value_problems(loaded), len(frame) - len(answered))
+                       odd_value_problems(loaded), len(frame) - len(answered), odd_complete)
 

@@ -49,6 +49,19 @@ def test_check_shows_a_forgotten_code_before_its_tables(tmp_path, capsys):
     assert caution < out.index("Model check") < out.index("Share of rows answering")
     assert "data rows 3, 31, 100" in out and "--missing-codes -99" in out
     assert "values that look like no answers" in (tmp_path / "check.json").read_text()
+    # the counts agree with the caution: the three rows are complete only if -99 is an answer
+    frame = pd.read_csv(DEMO)
+    items = [c for c in frame.columns if c not in ("rider_id", "district")]
+    complete = int(frame[items].notna().all(axis=1).sum())  # the demo file's complete rows (pandas' count)
+    saved = json.loads((tmp_path / "check.json").read_text())
+    coded_complete = int(frame.loc[[2, 30, 99], items].notna().all(axis=1).sum())
+    assert coded_complete and saved["complete_rows"] == complete - coded_complete
+    assert saved["complete_rows_by_values_not_answers"] == coded_complete
+    assert (f"{complete - coded_complete} complete (and {coded_complete} complete only if the values that look like "
+            f"no answers, named above, are answers)") in out
+    assert "counts as an answer here, as the fit would count it" in out
+    code, out, _ = _run(["check", MODEL, "--data", data, "--missing-codes", "-99"], capsys)
+    assert code == 0 and "complete only if" not in out and "looks like no answer" not in out
 
 
 def test_fit_cautions_first_and_still_fits(tmp_path, capsys):
