@@ -68,3 +68,22 @@ def test_ordinal_and_invariance_paths_say_it_too(spaced):
 def test_a_reference_group_is_read_as_the_labels_are(spaced):
     fitted = cfa_tool.fit(MODEL, spaced, group="area", reference_group="south ")
     assert fitted.groups[0].label == "south"
+
+
+def test_cluster_and_stratum_labels_are_read_as_group_labels_are(spaced):
+    # 30 clusters in 3 strata; every seventh row's cluster and stratum written with a trailing space: the same
+    # design (30 clusters, the same sandwich standard errors) as the clean labels, and a note for each column
+    clean = spaced.assign(school=[f"s{i % 30}" for i in range(len(spaced))],
+                          region=[f"r{i % 3}" for i in range(len(spaced))])
+    messy = clean.copy()
+    messy.loc[messy.index[::7], "school"] += " "
+    messy.loc[messy.index[1::7], "region"] += " "
+    a = cfa_tool.fit(MODEL, clean, cluster="school", strata="region")
+    b = cfa_tool.fit(MODEL, messy, cluster="school", strata="region")
+    assert (b.design.clusters, b.design.strata) == (a.design.clusters, a.design.strata) == (30, 3)
+    assert [r.se for r in b.estimates] == pytest.approx([r.se for r in a.estimates], rel=1e-12, nan_ok=True)
+    notes = [w for w in b.warnings if "were read as one" in w]
+    assert len(notes) == 2
+    assert notes[0].startswith("in the cluster column 'school', labels that differ only by spaces at their ends or by "
+                               "Unicode form were read as one cluster: 's0' and 's0 ' as 's0'")
+    assert notes[1].startswith("in the strata column 'region'") and "were read as one stratum" in notes[1]
