@@ -66,10 +66,11 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
     when needed, so that each kind of bad cell gets its own message."""
     values = column.to_numpy(dtype=object)
     out = np.full(len(values), np.nan)
+    numbers = row_numbers(column)  # data-row numbers, also after row filters
     for row, value in enumerate(values):
         if value is None or value is pd.NA or value is pd.NaT or (isinstance(value, float) and value != value):
             continue
-        where = f"{source}: column '{printable(name)}', data row {row + 1}"
+        where = f"{source}: column '{printable(name)}', data row {numbers[row]}"
         if isinstance(value, (bool, np.bool_)):
             raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
         if isinstance(value, (complex, np.complexfloating)):
@@ -91,7 +92,7 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
                 raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
             shown = printable(text if len(text) <= 40 else text[:37] + "...")
             raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "
-                            f"data row {row + 1}); indicators must be numbers: {_recoding(text)}")
+                            f"data row {numbers[row]}); indicators must be numbers: {_recoding(text)}")
         out[row] = number
     return out
 
@@ -127,7 +128,8 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> n
         infinite = np.isinf(values)
         if infinite.any():
             row, col = np.argwhere(infinite)[0]
-            raise DataError(f"{source}: column '{printable(names[col])}' has an infinite value in data row {row + 1}")
+            raise DataError(f"{source}: column '{printable(names[col])}' has an infinite value in data row "
+                            f"{row_numbers(frame)[row]}")
         empty = np.flatnonzero(np.isnan(values).all(axis=0))
         if len(empty):
             listed = ", ".join(f"'{printable(names[j])}'" for j in empty[:5])
@@ -139,7 +141,8 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> n
     if (largest > LARGEST_VALUE).any():
         col = int(np.flatnonzero(largest > LARGEST_VALUE)[0])
         row = int(np.nanargmax(np.abs(values[:, col])))
-        raise DataError(f"{source}: column '{printable(names[col])}' holds {values[row, col]:.3g} (data row {row + 1}), too "
+        raise DataError(f"{source}: column '{printable(names[col])}' holds {values[row, col]:.3g} (data row "
+                        f"{row_numbers(frame)[row]}), too "
                         f"large to compute with; if the value is right, divide the column by a power of ten (the fit does "
                         f"not change), otherwise correct it")
     return values
@@ -184,7 +187,7 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
         )
 
 
-def row_numbers(frame: pd.DataFrame) -> np.ndarray:
+def row_numbers(frame: pd.DataFrame | pd.Series) -> np.ndarray:
     """1-based data-row numbers: from the index when it counts rows (files, filtered files), else positions."""
     index = frame.index
     if isinstance(index, pd.RangeIndex) and index.start >= 0 and index.step == 1:  # the common case, without type checks
