@@ -39,6 +39,9 @@ def add_parser(sub) -> None:
     p.add_argument("--seed", type=int, default=0, help="seed of parallel analysis and of the rotation's random starts "
                                                        "(default 0)")
     O.add_data_options(p)
+    O.refuse_design_options(p, "explore analyses the unweighted correlations of independent rows (columns named as "
+                               "weights, clusters or strata are left out of its default items); fit the draft model "
+                               "with 'fit' and the design options")
     add_report_options(p)
 
 
