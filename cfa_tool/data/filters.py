@@ -103,7 +103,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str) ->
         }[f.operator] & column.notna()
         absent = ""
         if f.operator in ("=", "!=") and not (values == target).any():  # a value no row has: which ones are there
-            absent = (f"; no row has '{printable(str(f.value))}' in '{printable(f.column)}' (values present: "
+            absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "
                       f"{_present(values, target)})")
         before = len(frame)
         frame = frame.loc[keep.to_numpy()]
@@ -117,6 +117,8 @@ def _present(values: pd.Series, target, shown: int = 8) -> str:
     """The different values of a column, those nearest ``target`` first (a label differing only in upper and
     lower case, then near spellings; for numbers, the closest), at most ``shown`` of them."""
     found = pd.unique(values.dropna())
+    if not len(found):
+        return "none: every cell is empty"
     if isinstance(target, float):
         ordered = sorted(found, key=lambda v: (abs(v - target), v))
         texts = [label_text(float(v)) for v in ordered]
