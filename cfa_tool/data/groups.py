@@ -5,7 +5,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.labels import label_text, merged_labels
+from cfa_tool.data.labels import label_text
 from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool.errors import DataError, OptionError, printable
@@ -41,21 +41,6 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
 
 
 _label = label_text
-
-
-def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "group", unit: str = "group") -> list[str]:
-    """One note naming the labels of ``column`` that differed only by spaces at their ends or Unicode form and were
-    read as one (none when no labels were merged): of the group column (every command with groups gives it through
-    :func:`cfa_tool.pipeline.inputs.moments_for` or :func:`cfa_tool.pipeline.inputs.ordinal_groups`), or with
-    ``part`` and ``unit`` of a cluster or strata column (cfa_tool.data.sample_design)."""
-    merged = merged_labels(frame[column].dropna())
-    if not merged:
-        return []
-    listed = "; ".join(f"{' and '.join(repr(printable(t)) for t in texts)} as '{printable(label)}'"
-                       for label, texts in merged[:shown])
-    more = f"; and {len(merged) - shown} more" if len(merged) > shown else ""
-    return [f"in the {part} column '{printable(column)}', labels that differ only by spaces at their ends or by Unicode "
-            f"form were read as one {unit}: {listed}{more}"]
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

@@ -236,7 +236,7 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             raise DataError(f"{source}: stratum '{printable(single.index[0])}' of column '{printable(columns.strata)}' "
                             f"has a single {'cluster' if columns.cluster else 'row'}, so its variance cannot be estimated; "
                             f"merge it with a neighbouring stratum")
-    from cfa_tool.data.groups import label_notes
+    from cfa_tool.data.labels import label_notes
 
     for part, unit, name in (("cluster", "cluster", columns.cluster), ("strata", "stratum", columns.strata)):
         if name is not None:

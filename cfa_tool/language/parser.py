@@ -153,11 +153,12 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
 
 def _dashed_span_at(lines: tuple[str, ...], line: int, column: int) -> str | None:
     """The range 'a..b' meant where a dash at ``line``:``column`` stands between two names ('eng1-eng5')."""
-    if not 1 <= line <= len(lines):
+    if not 1 <= line <= len(lines) or not 1 <= column <= len(lines[line - 1]):
         return None
     text = lines[line - 1]
-    before = re.search(r"(\w+)\s*$", text[:column - 1])
-    after = re.match(r"\s*(\w+)", text[column:])
+    near = 80  # a name is not longer than this here; a bound keeps the search short on overlong lines
+    before = re.search(r"(\w+)\s*$", text[max(0, column - 1 - near):column - 1])
+    after = re.match(r"\s*(\w+)", text[column:column + near])
     if before is None or after is None:
         return None
     return dotted_span(f"{before.group(1)}{text[column - 1]}{after.group(1)}")

@@ -11,7 +11,8 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.groups import label_notes, split_moments
+from cfa_tool.data.groups import split_moments
+from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns, check_declared_ranges
 from cfa_tool.data.moments import SampleMoments, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.odd_values import odd_values

@@ -12,7 +12,7 @@ from cfa_tool.pipeline.inputs import (choose_missing_handling, design_test, load
                                       odd_value_problems, odd_values_named,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_row_options, summary_source, with_design)
-from cfa_tool.data.groups import label_notes
+from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.odd_values import odd_values

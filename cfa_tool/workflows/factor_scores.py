@@ -402,7 +402,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names")
     if group is not None:
-        from cfa_tool.data.groups import label_notes
+        from cfa_tool.data.labels import label_notes
 
         notes += label_notes(frame, group)
     if ordinal:

@@ -8,7 +8,7 @@ import pandas as pd
 import pytest
 
 import cfa_tool
-from cfa_tool.data.groups import label_notes
+from cfa_tool.data.labels import label_notes
 
 MODEL = "factor f: y1, y2, y3, y4\n"
 NOTE = "labels that differ only by spaces at their ends or by Unicode form were read as one group"
