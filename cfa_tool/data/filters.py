@@ -95,8 +95,10 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str) ->
             if f.operator not in ("=", "!="):
                 raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds text, which can only be "
                                   f"compared with = or !=")
-            values = column.map(lambda v: None if pd.isna(v) else label_text(v))
+            values = column.map(lambda v: None if pd.isna(v) else _cell_label(v))
             target = label_text(f.value)
+            if target.casefold() in ("true", "false") and values.isin(("TRUE", "FALSE")).any():
+                target = target.upper()  # a TRUE/FALSE cell as a spreadsheet shows it, whatever the case typed
         keep = {
             "=": values == target, "!=": values != target, "<": values < target, "<=": values <= target,
             ">": values > target, ">=": values >= target,
@@ -128,6 +130,13 @@ def _present(values: pd.Series, target, shown: int = 8) -> str:
         texts = near + [t for t in texts if t not in near]
     more = f" and {len(texts) - shown} more" if len(texts) > shown else ""
     return ", ".join(printable(t) for t in texts[:shown]) + more
+
+
+def _cell_label(value) -> str:
+    """A cell as a filter compares it: TRUE/FALSE cells as spreadsheets write them, anything else as a label."""
+    if isinstance(value, (bool, np.bool_)):
+        return "TRUE" if value else "FALSE"
+    return label_text(value)
 
 
 def _number_or_nan(value) -> float:

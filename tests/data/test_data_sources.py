@@ -199,6 +199,15 @@ def test_row_filter_of_a_value_no_row_has_lists_the_values_nearest_first(hs_data
         cfa_tool.fit(THREE_FACTORS, hs_data, keep=["ageyr = 13.2"])
 
 
+def test_row_filter_on_true_and_false_cells_reads_them_as_spreadsheets_write_them(hs_data):
+    flagged = hs_data.assign(retested=hs_data["id"] % 2 == 0)  # a TRUE/FALSE column, as a CSV reader gives it
+    for value in ("TRUE", "true", "True"):
+        kept = cfa_tool.fit(THREE_FACTORS, flagged, keep=[f"retested = {value}"])
+        assert kept.n_obs == int(flagged["retested"].sum())
+    with pytest.raises(DataError, match=r"values present: FALSE, TRUE\)"):
+        cfa_tool.fit(THREE_FACTORS, flagged, keep=["retested = yes"])
+
+
 def test_filters_are_never_evaluated(hs_data):
     # a filter that would be code in a language is only ever compared as text
     with pytest.raises(DataError, match="no row is left"):
