@@ -8,11 +8,13 @@ Rules (the contributor guide's "never lose a file"):
 * Two outputs of one run may not name the same file.
 * An output path that is a folder, lies in a folder that does not exist or cannot be
   written, or lies on a pseudo-filesystem (/proc, /sys, ...) is an error before any
-  work is done.
+  work is done.  A table folder may be new, but its parent must exist (no folders
+  are made on the way).
 * Regular files are written to a temporary file beside the target and renamed into
   place (an interrupted run leaves the old file whole), with the permissions the
   user's umask gives (or the replaced file's own).  A symbolic link is followed and
-  its target replaced, so the link stays a link.  Character devices and named pipes
+  its target replaced, so the link stays a link, only when the target is a file this
+  tool wrote or no file yet (see below); errors about it name the link and its target.  Character devices and named pipes
   (``/dev/null``, a FIFO) and ``-`` (standard output) are written directly, never
   renamed over.
 * An existing file is replaced only when this tool wrote it there and it is unchanged
@@ -147,6 +149,10 @@ def check_target(option: str, given: str) -> Target:
         raise OptionError(f"{option}: '{shown(given)}' is the tool's record of the files it wrote; give another name")
     folder = real.parent
     if not folder.is_dir():
+        if os.path.islink(path):  # a link to a file in a folder that does not exist: the link's target is named
+            raise OptionError(f"{option}: cannot write '{shown(given)}': it is a symbolic link to "
+                              f"'{shown(os.readlink(path))}', whose folder '{shown(folder)}' does not exist; give the "
+                              f"file's own name or remove the link")
         raise OptionError(f"{option}: cannot write '{shown(given)}': the folder '{shown(path.parent)}' does not exist")
     kind = filesystem_type(folder)
     if kind in PSEUDO_FILESYSTEMS:
@@ -258,9 +264,16 @@ def check_folder(option: str, folder: str) -> None:
     path = Path(folder)
     if path.exists() and not path.is_dir():
         raise OptionError(f"{option}: '{shown(folder)}' is a file; give a folder for the tables")
-    existing = path if path.is_dir() else next((p for p in path.absolute().parents if p.exists()), Path("/"))
+    if not path.exists() and path.is_symlink():
+        raise OptionError(f"{option}: '{shown(folder)}' is a symbolic link to '{shown(os.readlink(path))}', which does "
+                          f"not exist; give an existing folder or a new folder's name")
+    # a new folder is made in an existing one, never with its parents (as a file is written into an existing folder)
+    existing = path if path.is_dir() else path.absolute().parent
+    if not existing.exists():
+        raise OptionError(f"{option}: cannot create the folder '{shown(folder)}': the folder "
+                          f"'{shown(path.parent)}' does not exist")
     if not existing.is_dir():
-        raise OptionError(f"{option}: cannot create the folder '{shown(folder)}': '{shown(existing)}' is a file")
+        raise OptionError(f"{option}: cannot create the folder '{shown(folder)}': '{shown(path.parent)}' is a file")
     kind = filesystem_type(Path(os.path.realpath(existing)))
     if kind in PSEUDO_FILESYSTEMS:
         raise OptionError(f"{option}: '{shown(folder)}' is on the system's {kind} filesystem, not a place for files")
@@ -298,6 +311,10 @@ def check_replaceable(target: Target) -> None:
         return
     real = Path(os.path.realpath(target.given))
     if real.is_file() and not _written_here(real, target.option):
+        if os.path.islink(target.given):
+            raise OptionError(f"{target.option}: '{shown(target.given)}' is a symbolic link to '{shown(real)}', which "
+                              f"was not written by cfa-tool (or was changed since), so it is not replaced; choose "
+                              f"another name, or remove the link")
         raise OptionError(f"{target.option}: '{shown(target.given)}' exists and was not written by cfa-tool (or was "
                           f"changed since), so it is not replaced; choose another name, or move or delete that file")
 
@@ -384,7 +401,7 @@ def write_table_folder(option: str, folder: str | Path, files: dict[str, str], i
     path = Path(folder)
     check_table_folder(option, folder, files, inputs)
     try:
-        path.mkdir(parents=True, exist_ok=True)
+        path.mkdir(exist_ok=True)
     except OSError as exc:
         raise OptionError(f"{option}: cannot create the folder '{shown(folder)}' ({exc.strerror or exc})") from None
     written = {}

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import difflib
+import re
 from collections.abc import Iterable
 
 
@@ -16,3 +17,24 @@ def close_names(word: str, candidates: Iterable[str], n: int = 1, cutoff: float 
         return same[:n]
     lowered = {c.casefold(): c for c in candidates}
     return [lowered[m] for m in difflib.get_close_matches(folded, list(lowered), n=n, cutoff=cutoff)]
+
+
+#: a span of names written with a dash (or an en or em dash, as word processors make it) instead of '..'
+_DASHED_SPAN = re.compile(r"\s*(\w+)\s*[-\u2013\u2014]\s*(\w+)\s*")
+
+
+def dotted_span(text: str) -> str | None:
+    """'eng1..eng5' for text such as 'eng1-eng5' or 'eng1 – eng5', where a span of names was written with a dash
+    instead of the tool's two dots; None for other text."""
+    match = _DASHED_SPAN.fullmatch(text)
+    return f"{match.group(1)}..{match.group(2)}" if match else None
+
+
+def one_by_one(name: str) -> str:
+    """For a span written with a dash where names are given one by one (a list of items): how to write them
+    ('; give the items one by one, ...'), or nothing for other text."""
+    span = dotted_span(name)
+    if span is None:
+        return ""
+    first, last = span.split("..")
+    return f"; give the items one by one, separated by commas ('{first}, ..., {last}')"

@@ -16,7 +16,8 @@ def add_parser(sub) -> None:
     p.add_argument("--data", required=True, metavar="FILE", help="data file (rows of answers)")
     p.add_argument("--items", metavar="NAMES",
                    help="comma-separated columns to explore; a..b is every column from a to b in the file "
-                        "(default: every column that holds numbers)")
+                        "(default: every column that holds numbers, except ids and columns named as weights, "
+                        "clusters, strata or groups; the report names those left out)")
     p.add_argument("--factors", metavar="K", default="auto",
                    help="number of factors, or 'auto' for the recommended number (default auto)")
     p.add_argument("--rotation", default=None,
@@ -38,6 +39,9 @@ def add_parser(sub) -> None:
     p.add_argument("--seed", type=int, default=0, help="seed of parallel analysis and of the rotation's random starts "
                                                        "(default 0)")
     O.add_data_options(p)
+    O.refuse_design_options(p, "explore analyses the unweighted correlations of independent rows (columns named as "
+                               "weights, clusters or strata are left out of its default items); fit the draft model "
+                               "with 'fit' and the design options")
     add_report_options(p)
 
 

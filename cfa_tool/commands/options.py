@@ -30,12 +30,14 @@ def add_model_and_data(p: argparse.ArgumentParser, data_help: str = "data file")
     p.add_argument("--data", required=True, metavar="FILE", help=data_help)
 
 
-def add_data_options(p: argparse.ArgumentParser) -> None:
+def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
+    """--sheet, --missing-codes and (``filters``) --keep."""
     p.add_argument("--sheet", metavar="NAME", help="sheet of an Excel workbook (default: the first)")
     p.add_argument("--missing-codes", metavar="LIST", type=_codes, default=(),
                    help="comma-separated values that mean 'no answer', e.g. -99,999")
-    p.add_argument("--keep", metavar="FILTER", action="append", default=[],
-                   help="keep only rows that meet COLUMN OPERATOR VALUE, e.g. 'district = north' (repeatable)")
+    if filters:
+        p.add_argument("--keep", metavar="FILTER", action="append", default=[],
+                       help="keep only rows that meet COLUMN OPERATOR VALUE, e.g. 'district = north' (repeatable)")
 
 
 def _codes(text: str) -> tuple[float, ...]:

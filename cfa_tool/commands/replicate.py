@@ -16,6 +16,7 @@ def add_parser(sub) -> None:
     rep.add_argument("--validation", metavar="FILE", help="new data the estimates are checked in")
     rep.add_argument("--data", metavar="FILE", help="one data file to split at random into two halves")
     rep.add_argument("--seed", type=int, default=1, help="seed of the random split (default 1)")
+    O.add_data_options(rep, filters=False)
     O.add_ordinal_options(rep)
     O.add_incomplete_rows_option(rep, O.REFITS_AS_THE_FIT)
     O.refuse_design_options(rep, "replicate's tight test and cross-validation index compare normal-theory "
@@ -34,7 +35,7 @@ def run(args: argparse.Namespace) -> int:
     if args.data and (args.calibration or args.validation):
         raise OptionError("give either --data (split-half) or --calibration and --validation, not both")
     ordinal = {"ordinal": O.ordinal_arg(args.ordinal), "ordinal_estimator": args.ordinal_estimator,
-               "missing": args.missing}
+               "missing": args.missing, "sheet": args.sheet, "missing_codes": args.missing_codes}
     if args.data:
         pair = split_half(model, args.data, seed=args.seed, **ordinal)
     elif args.calibration and args.validation:

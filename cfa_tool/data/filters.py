@@ -43,14 +43,33 @@ def parse_filter(text: str) -> RowFilter:
     op = "=" if match.group("op") == "==" else match.group("op")
     raw = match.group("value")
     if raw[:1] in "=!<>":
-        raise OptionError(f"row filter '{printable(text)}': unknown operator '{match.group('op')}{raw[0]}'; the "
-                          f"operators are = != < <= > >=")
+        raise OptionError(_second_operator(text, match.start("op"), match.group("op"), match.start("value")))
     if len(raw) >= 2 and raw[0] == raw[-1] and raw[0] in "\"'":
         value: object = raw[1:-1]
     else:
         parsed = number(raw)
         value = parsed if parsed is not None else raw
     return RowFilter(column, op, value, text.strip())
+
+
+OPERATORS = ("=", "!=", "<", "<=", ">", ">=")
+
+
+def _second_operator(text: str, start: int, op: str, position: int) -> str:
+    """The message for an operator (from ``start``, 0-based) followed by another operator character at
+    ``position``: an operator typed with a space inside ('> ='), an unknown one ('<>'), or a value that begins
+    with one of those characters and needs quotes."""
+    where = f"row filter '{printable(text)}'"
+    next_char = text[position]
+    joined = op + next_char
+    spaced = text[position - 1:position].isspace()
+    if spaced and joined in OPERATORS + ("==",):
+        return (f"{where}: the operator at character {start + 1} has a space inside ('{text[start:position + 1]}'); "
+                f"write '{joined}' without the space, or put a value that begins with '{next_char}' in quotes")
+    if spaced:
+        return (f"{where}: a second operator '{next_char}' at character {position + 1}; put a value that begins "
+                f"with '{next_char}' in quotes; the operators are {' '.join(OPERATORS)}")
+    return f"{where}: unknown operator '{joined}'; the operators are {' '.join(OPERATORS)}"
 
 
 def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str) -> tuple[pd.DataFrame, list[str]]:
@@ -76,18 +95,48 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str) ->
             if f.operator not in ("=", "!="):
                 raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds text, which can only be "
                                   f"compared with = or !=")
-            values = column.map(lambda v: None if pd.isna(v) else label_text(v))
+            values = column.map(lambda v: None if pd.isna(v) else _cell_label(v))
             target = label_text(f.value)
+            if target.casefold() in ("true", "false") and values.isin(("TRUE", "FALSE")).any():
+                target = target.upper()  # a TRUE/FALSE cell as a spreadsheet shows it, whatever the case typed
         keep = {
             "=": values == target, "!=": values != target, "<": values < target, "<=": values <= target,
             ">": values > target, ">=": values >= target,
         }[f.operator] & column.notna()
+        absent = ""
+        if f.operator in ("=", "!=") and not (values == target).any():  # a value no row has: which ones are there
+            absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "
+                      f"{_present(values, target)})")
         before = len(frame)
         frame = frame.loc[keep.to_numpy()]
-        notes.append(f"row filter '{f}' kept {len(frame)} of {before} rows")
+        notes.append(f"row filter '{f}' kept {len(frame)} of {before} rows{absent}")
         if len(frame) == 0:
-            raise DataError(f"{source}: no row is left after the row filter '{printable(f)}'")
+            raise DataError(f"{source}: no row is left after the row filter '{printable(f)}'{absent}")
     return frame, notes
+
+
+def _present(values: pd.Series, target, shown: int = 8) -> str:
+    """The different values of a column, those nearest ``target`` first (a label differing only in upper and
+    lower case, then near spellings; for numbers, the closest), at most ``shown`` of them."""
+    found = pd.unique(values.dropna())
+    if not len(found):
+        return "none: every cell is empty"
+    if isinstance(target, float):
+        ordered = sorted(found, key=lambda v: (abs(v - target), v))
+        texts = [label_text(float(v)) for v in ordered]
+    else:
+        texts = sorted(str(v) for v in found)
+        near = close_names(str(target), texts, n=3)
+        texts = near + [t for t in texts if t not in near]
+    more = f" and {len(texts) - shown} more" if len(texts) > shown else ""
+    return ", ".join(printable(t) for t in texts[:shown]) + more
+
+
+def _cell_label(value) -> str:
+    """A cell as a filter compares it: TRUE/FALSE cells as spreadsheets write them, anything else as a label."""
+    if isinstance(value, (bool, np.bool_)):
+        return "TRUE" if value else "FALSE"
+    return label_text(value)
 
 
 def _number_or_nan(value) -> float:

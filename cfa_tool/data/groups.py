@@ -5,7 +5,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.labels import label_text, merged_labels
+from cfa_tool.data.labels import label_text
 from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool.errors import DataError, OptionError, printable
@@ -32,6 +32,7 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
         only = f" ('{labels[0]}')" if labels else ""
         raise DataError(f"{source}: the group column '{column}' has only {len(labels)} group{only}; a multi-group analysis needs at least two")
     if reference is not None:
+        reference = label_text(reference) if isinstance(reference, str) else reference  # read as the labels are
         if reference not in labels:
             raise OptionError(f"{source}: '{reference}' is not a group of column '{column}' (groups: {', '.join(labels)})")
         labels.remove(reference)
@@ -40,13 +41,6 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
 
 
 _label = label_text
-
-
-def label_notes(frame: pd.DataFrame, column: str) -> list[str]:
-    """Notes on group labels that differed only by spaces at their ends or Unicode form and were read as one."""
-    return [f"in the group column '{printable(column)}', {' and '.join(repr(printable(t)) for t in texts)} were read as "
-            f"one group '{printable(label)}' (spaces at the ends and Unicode forms are ignored)"
-            for label, texts in merged_labels(frame[column].dropna())]
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

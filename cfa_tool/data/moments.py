@@ -6,6 +6,7 @@ normal-theory ML fitting (Bollen 1989, ch. 4).
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -101,10 +102,11 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
     when needed, so that each kind of bad cell gets its own message."""
     values = column.to_numpy(dtype=object)
     out = np.full(len(values), np.nan)
+    numbers = row_numbers(column)  # data-row numbers, also after row filters
     for row, value in enumerate(values):
         if value is None or value is pd.NA or value is pd.NaT or (isinstance(value, float) and value != value):
             continue
-        where = f"{source}: column '{printable(name)}', data row {row + 1}"
+        where = f"{source}: column '{printable(name)}', data row {numbers[row]}"
         if isinstance(value, (bool, np.bool_)):
             raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
         if isinstance(value, (complex, np.complexfloating)):
@@ -126,11 +128,27 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
                 raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
             shown = printable(text if len(text) <= 40 else text[:37] + "...")
             raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "
-                            f"data row {row + 1}); indicators must be numbers")
+                            f"data row {numbers[row]}); indicators must be numbers: {_recoding(text)}")
         out[row] = number
     return out
 
 
+
+
+#: an answer written as its code and its label: '5 - strongly agree', '2: rarely', '1) never'
+_CODE_AND_LABEL = re.compile(r"\s*([-+]?\d+)\s*[-\u2013\u2014:=.)]\s*\D.*", re.DOTALL)
+
+
+def _recoding(text: str) -> str:
+    """How to turn a text answer into the number an indicator needs."""
+    coded = _CODE_AND_LABEL.fullmatch(text)
+    if coded:
+        return (f"keep only the number before each label (here {coded.group(1)}) in every cell of the column, or "
+                f"export the answers' values rather than their labels")
+    if any(ch.isdigit() for ch in text):  # a number mistyped, most likely
+        return "correct the cell, or leave it empty for no answer"
+    return ("recode the answers as numbers (such as 1 for the lowest to 5 for the highest) in every cell of the column, "
+            "or export the answers' values rather than their labels; leave a cell empty for no answer")
 
 
 #: Numbers beyond these magnitudes cannot be analysed in double precision (their squares and
@@ -148,7 +166,8 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, valu
         infinite = np.isinf(values)
         if infinite.any():
             row, col = np.argwhere(infinite)[0]
-            raise DataError(f"{source}: column '{printable(names[col])}' has an infinite value in data row {row + 1}")
+            raise DataError(f"{source}: column '{printable(names[col])}' has an infinite value in data row "
+                            f"{row_numbers(frame)[row]}")
         empty = np.flatnonzero(np.isnan(values).all(axis=0))
         if len(empty):
             listed = ", ".join(f"'{printable(names[j])}'" for j in empty[:5])
@@ -160,7 +179,8 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, valu
     if (largest > LARGEST_VALUE).any():
         col = int(np.flatnonzero(largest > LARGEST_VALUE)[0])
         row = int(np.nanargmax(np.abs(values[:, col])))
-        raise DataError(f"{source}: column '{printable(names[col])}' holds {values[row, col]:.3g} (data row {row + 1}), too "
+        raise DataError(f"{source}: column '{printable(names[col])}' holds {values[row, col]:.3g} (data row "
+                        f"{row_numbers(frame)[row]}), too "
                         f"large to compute with; if the value is right, divide the column by a power of ten (the fit does "
                         f"not change), otherwise correct it")
     return values
@@ -205,7 +225,7 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
         )
 
 
-def row_numbers(frame: pd.DataFrame) -> np.ndarray:
+def row_numbers(frame: pd.DataFrame | pd.Series) -> np.ndarray:
     """1-based data-row numbers: from the index when it counts rows (files, filtered files), else positions."""
     index = frame.index
     if isinstance(index, pd.RangeIndex) and index.start >= 0 and index.step == 1:  # the common case, without type checks
@@ -302,19 +322,27 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data)
 
 
-def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20) -> dict:
+def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20,
+                    frequency_weights: str | None = None) -> dict:
     """Coverage of each variable and the most frequent missing-data patterns, each named by the items its
-    rows did not answer (an empty list: complete rows)."""
+    rows did not answer (an empty list: complete rows).  ``frequency_weights``: a column of counts (checked
+    beforehand); each row then counts as often as its weight, as it does in N, and the summary names the column."""
     observed = frame[list(names)].notna().to_numpy()
-    coverage = {name: float(v) for name, v in zip(names, observed.mean(axis=0))}
+    counts = (np.ones(len(frame)) if frequency_weights is None
+              else pd.to_numeric(frame[frequency_weights]).to_numpy(dtype=float))
+    total = counts.sum()
+    coverage = {name: float(v) for name, v in zip(names, counts @ observed / total if total else observed.mean(axis=0))}
+    weighted = {"counted_by_weights": frequency_weights} if frequency_weights is not None else {}
     if observed.all():
-        return {"coverage": coverage, "patterns": [{"not_answered": [], "rows": int(len(observed))}],
-                "n_patterns": 1 if len(observed) else 0}
-    patterns, counts = np.unique(observed, axis=0, return_counts=True)
-    order = np.argsort(-counts, kind="stable")[:limit]
+        return {"coverage": coverage, "patterns": [{"not_answered": [], "rows": int(round(total))}],
+                "n_patterns": 1 if len(observed) else 0, **weighted}
+    patterns, which = np.unique(observed, axis=0, return_inverse=True)
+    sums = np.bincount(which.ravel(), weights=counts, minlength=len(patterns))
+    order = np.argsort(-sums, kind="stable")[:limit]
     return {
         "coverage": coverage,
         "patterns": [{"not_answered": [name for name, answered in zip(names, patterns[k]) if not answered],
-                      "rows": int(counts[k])} for k in order],
+                      "rows": int(round(sums[k]))} for k in order],
         "n_patterns": int(len(patterns)),
+        **weighted,
     }

@@ -192,7 +192,7 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             notes.append(f"{int(zero.sum())} rows have weight 0 in '{columns.weights}' and were left out")
             rows = rows[~zero]
             if group is not None and group in frame.columns:
-                gone = sorted(set(before[group].dropna().astype(str)) - set(frame[group].dropna().astype(str)))
+                gone = sorted(set(_labels(before[group]).dropna()) - set(_labels(frame[group]).dropna()))
                 if gone:
                     notes.insert(0, f"every row of group{'s' if len(gone) > 1 else ''} "
                                     f"{', '.join(repr(g) for g in gone)} of '{group}' has weight 0, so "
@@ -204,14 +204,17 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
                 raise DataError(f"{source}: column '{printable(name)}', data row {rows[np.argmax(absent)]}: no {what} "
                                 f"given; every row needs one (a row filter, --keep, can leave such rows out)")
     if columns.cluster is not None and columns.strata is not None:
-        pairs = frame[[columns.cluster, columns.strata]].astype(str).drop_duplicates()
+        pairs = pd.DataFrame({columns.cluster: _labels(frame[columns.cluster]),
+                              columns.strata: _labels(frame[columns.strata])}).drop_duplicates()
         shared = pairs[columns.cluster].duplicated()
         if shared.any():
             cluster = pairs[columns.cluster][shared.to_numpy()].iloc[0]
             raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' lies in "
                             f"more than one stratum of '{printable(columns.strata)}'; clusters must be nested in strata")
     if columns.cluster is not None and group is not None:
-        pairs = frame.loc[frame[group].notna(), [columns.cluster, group]].astype(str).drop_duplicates()
+        labelled = frame.loc[frame[group].notna()]
+        pairs = pd.DataFrame({columns.cluster: _labels(labelled[columns.cluster]),
+                              group: _labels(labelled[group])}).drop_duplicates()
         shared = pairs[columns.cluster].duplicated()
         if shared.any():
             cluster = pairs[columns.cluster][shared.to_numpy()].iloc[0]
@@ -219,21 +222,34 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
                             f"more than one group of '{printable(group)}'; the groups are fitted as independent samples, "
                             f"so every cluster must lie within one group")
     if columns.cluster is not None:
-        names = pd.unique(frame[columns.cluster].astype(str))
+        names = pd.unique(_labels(frame[columns.cluster]))
         if len(names) < 2:
             raise DataError(f"{source}: column '{printable(columns.cluster)}' names a single cluster "
                             f"('{printable(names[0])}'), and cluster-robust standard errors need at least two (and "
                             f"about 30 or more to be trusted); remove the cluster column or give the right one")
     if columns.strata is not None:
-        units = frame[columns.cluster].astype(str) if columns.cluster is not None else pd.Series(np.arange(len(frame)),
-                                                                                                 index=frame.index)
-        per_stratum = units.groupby(frame[columns.strata].astype(str).to_numpy()).nunique()
+        units = _labels(frame[columns.cluster]) if columns.cluster is not None else pd.Series(np.arange(len(frame)),
+                                                                                             index=frame.index)
+        per_stratum = units.groupby(_labels(frame[columns.strata]).to_numpy()).nunique()
         single = per_stratum[per_stratum < 2]
         if len(single):
             raise DataError(f"{source}: stratum '{printable(single.index[0])}' of column '{printable(columns.strata)}' "
                             f"has a single {'cluster' if columns.cluster else 'row'}, so its variance cannot be estimated; "
                             f"merge it with a neighbouring stratum")
+    from cfa_tool.data.labels import label_notes
+
+    for part, unit, name in (("cluster", "cluster", columns.cluster), ("strata", "stratum", columns.strata)):
+        if name is not None:
+            notes += label_notes(frame, name, part=part, unit=unit)
     return frame, notes
+
+
+def _labels(column: pd.Series) -> pd.Series:
+    """A column of cluster, stratum or group names read as labels are read everywhere (spaces at the ends and
+    Unicode forms ignored; cfa_tool.data.labels), missing values kept missing."""
+    from cfa_tool.data.labels import label_text
+
+    return column.map({v: label_text(v) for v in pd.unique(column.dropna())})  # each different name once
 
 
 def _data_rows(frame: pd.DataFrame) -> np.ndarray:
@@ -244,11 +260,19 @@ def _data_rows(frame: pd.DataFrame) -> np.ndarray:
 
 def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.ndarray) -> np.ndarray:
     name = columns.weights
-    values = pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=float)
     where = f"{source}: weights column '{printable(name)}', data row"
+    column = frame[name]
+    truth = (np.ones(len(column), dtype=bool) if column.dtype.kind == "b" or str(column.dtype) == "boolean"
+             else column.map(lambda v: isinstance(v, (bool, np.bool_))).to_numpy(dtype=bool))
+    truth = truth & column.notna().to_numpy()
+    if truth.any():  # TRUE/FALSE would be read as 1/0: weights must be numbers
+        first = int(np.argmax(truth))
+        raise DataError(f"{where} {rows[first]}: holds {str(column.iloc[first]).upper()}, a TRUE/FALSE value; weights "
+                        f"must be numbers (is it the right column?)")
+    values = pd.to_numeric(column, errors="coerce").to_numpy(dtype=float)
     text = np.isnan(values) & frame[name].notna().to_numpy()
     if text.any():
-        raise DataError(f"{where} {rows[np.argmax(text)]}: '{printable(str(frame[name].iloc[np.argmax(text)]))[:40]}' "
+        raise DataError(f"{where} {rows[np.argmax(text)]}: '{printable(str(column.iloc[np.argmax(text)]))[:40]}' "
                         f"is not a number")
     for bad, what in ((np.isnan(values), "no weight (every row needs one; leave such rows out with --keep)"),
                       (np.isinf(values), "an infinite weight"), (values < 0, "a negative weight")):
@@ -285,7 +309,7 @@ def row_design(frame: pd.DataFrame, columns: DesignColumns, kept: np.ndarray) ->
     given = (float(w.sum()), float(w @ w))
     if columns.kind is WeightKind.SAMPLING:
         w = w * (len(w) / w.sum())
-    codes = [pd.factorize(frame[name].astype(str).to_numpy()[kept])[0] if name is not None else None
+    codes = [pd.factorize(_labels(frame[name]).to_numpy()[kept])[0] if name is not None else None
              for name in (columns.cluster, columns.strata)]
     return RowDesign(w, columns.kind, *codes, given=given)
 
@@ -317,20 +341,18 @@ def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list) -
         square = sum(m.design.given[1] for m in moments)
     kish = total ** 2 / square if total is not None and columns.kind is WeightKind.SAMPLING else total
     clusters = sum(len(np.unique(m.design.clusters)) for m in moments) if columns.cluster else None
-    strata = len(pd.unique(frame[columns.strata].astype(str))) if columns.strata else None
+    strata = len(pd.unique(_labels(frame[columns.strata]))) if columns.strata else None
     return SampleDesign(columns, rows, total, kish, clusters, strata)
 
 
 def apply_design(groups: list, frame: pd.DataFrame, group_column: str | None, names: tuple[str, ...], source: str,
                  columns: DesignColumns, missing) -> list:
     """Each group's (label, SampleMoments) with the design of its rows attached."""
-    from cfa_tool.data.labels import label_text
-
     out = []
     for label, moments in groups:
         part = frame
         if group_column is not None:
-            keys = frame[group_column].map(lambda v: None if pd.isna(v) else label_text(v))
+            keys = _labels(frame[group_column])
             part = frame.loc[(keys == label).to_numpy()]
         kept = kept_rows(part, names, source, missing)
         out.append((label, with_row_design(moments, row_design(part, columns, kept))))

@@ -16,7 +16,7 @@ from pathlib import Path
 from lark import Lark, Token, Tree
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
-from cfa_tool.suggest import close_names
+from cfa_tool.suggest import close_names, dotted_span
 from cfa_tool.errors import Location, ModelError, printable
 from cfa_tool.input_files import input_bytes, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.language.spec import (
@@ -139,12 +139,28 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
         message = f"unexpected character '{char}'"
         if char == "'":
             message += ' (use double quotes for quoted names and titles)'
+        span = _dashed_span_at(lines, line, column)
+        if span is not None:
+            message += f"; a range of names is written with two dots: '{span}'"
     elif isinstance(exc, UnexpectedToken):
         message = _unexpected_token_message(exc)
     else:  # pragma: no cover - Lark has no other public kinds
         message = "the model text cannot be read here"
     source_line = lines[line - 1] if 1 <= line <= len(lines) else None
     return ModelError(message, Location(source, line, column), source_line)
+
+
+def _dashed_span_at(lines: tuple[str, ...], line: int, column: int) -> str | None:
+    """The range 'a..b' meant where a dash at ``line``:``column`` stands between two names ('eng1-eng5')."""
+    if not 1 <= line <= len(lines) or not 1 <= column <= len(lines[line - 1]):
+        return None
+    text = lines[line - 1]
+    near = 80  # a name is not longer than this here; a bound keeps the search short on overlong lines
+    before = re.search(r"(\w+)\s*$", text[max(0, column - 1 - near):column - 1])
+    after = re.match(r"\s*(\w+)", text[column:column + near])
+    if before is None or after is None:
+        return None
+    return dotted_span(f"{before.group(1)}{text[column - 1]}{after.group(1)}")
 
 
 def _unexpected_token_message(exc: UnexpectedToken) -> str:

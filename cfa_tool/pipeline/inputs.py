@@ -11,7 +11,8 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.groups import label_notes, split_moments
+from cfa_tool.data.groups import split_moments
+from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns, check_declared_ranges
 from cfa_tool.data.moments import SampleMoments, item_columns, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.odd_values import odd_values
@@ -295,6 +296,13 @@ def odd_value_problems(loaded: LoadedData) -> tuple:
                  for odd in loaded.odd_values)
 
 
+def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> LoadedData:
+    """``frame`` as loaded data holding the values among the columns ``names`` that look like no answers, for the
+    commands that read their data without :func:`read_inputs_with_notes` (replicate, explore): their cautions
+    (:func:`odd_value_problems`) and :func:`odd_values_named` then work as for every other command."""
+    return LoadedData(frame, source, odd_values=odd_values(frame, tuple(names), row_numbers(frame)))
+
+
 def with_odd_values(result, loaded: LoadedData):
     """``result`` (anything with ``problems``) with the cautions of :func:`odd_value_problems` before its own:
     the fit is not refused, since the user may know better."""
@@ -366,7 +374,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
             result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator,
                                   design)
         labels = tuple(g.label for g in result.groups) if group is not None else None
-        summary = missing_summary(_labelled(frame, group), spec.observed_names)  # as for continuous items
+        summary = missing_summary(_labelled(frame, group), spec.observed_names,  # as for continuous items
+                                  frequency_weights=counted_by(design))
         gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
         return _described(replace(converged(result), warnings=tuple(notes) + result.warnings,
                                   missing_data=summary if gaps else None), spec, labels, ordinal_items)
@@ -385,7 +394,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     analysed = _labelled(frame, group)
     every_row_complete = (sum(m.n_obs for _, m in groups) == len(analysed)
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
-    summary = None if every_row_complete else missing_summary(analysed, spec.observed_names)
+    summary = None if every_row_complete else missing_summary(analysed, spec.observed_names,
+                                                              frequency_weights=counted_by(design))
     labels = {
         "variables": {k: v for k, v in loaded.variable_labels.items() if k in spec.observed_names},
         "values": {k: v for k, v in loaded.value_labels.items() if k in spec.observed_names},
@@ -395,6 +405,13 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                                                                       or not all(summary["coverage"].values())) else None,
                      labels=labels if labels["variables"] or labels["values"] else None)
     return _described(result, spec, tuple(label for label, _ in groups) if group is not None else None)
+
+
+def counted_by(design: DesignColumns | None) -> str | None:
+    """The column of frequency weights, by which rows are counted (in N and in the missing-data table), if any."""
+    if design is None or design.weights is None or design.kind is not WeightKind.FREQUENCY:
+        return None
+    return design.weights
 
 
 def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
@@ -622,7 +639,10 @@ def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
     elif ordinal:
         for name in ([ordinal] if isinstance(ordinal, str) else ordinal):
             if name not in spec.observed_names:
-                raise OptionError(f"'{name}' is given as ordinal but is not an indicator in the model")
+                from cfa_tool.suggest import one_by_one
+
+                raise OptionError(f"'{printable(name)}' is given as ordinal but is not an indicator in the model"
+                                  + one_by_one(name))
             items.add(name)
     return items
 
@@ -688,12 +708,12 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         check_counting_rule(spec, build_parameter_table(spec))
         return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0,
                            {name: 1.0 for name in spec.observed_names}, None)
-    spec, loaded, _ = read_inputs_with_notes(model, data, **read_options)
+    spec, loaded, notes = read_inputs_with_notes(model, data, **read_options)
     frame, source = loaded.frame, loaded.source
     loaded = analysed_odd_values(loaded, spec, group)
-    notes: list[str] = []
     if design is not None:
-        frame, notes = check_design(frame, design, spec.observed_names, group, source)
+        frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
+        notes += design_notes
     ordinal_items = ordinal_items_of(spec, None)
     if ordinal_items:  # the same data checks as the fit (categories, empty cells in groups, duplicates)
         if group is not None:
@@ -704,17 +724,22 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
             ordinal_moments(frame, spec.observed_names, source,
                             frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
-    groups, _ = moments_for(spec, frame, source, group, reference_group, missing=options.missing, design=design)
+    groups, group_notes = moments_for(spec, frame, source, group, reference_group, missing=options.missing, design=design)
+    notes += group_notes
     labels = tuple(label for label, _ in groups) if group is not None else None
     table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)
     check_counting_rule(spec, table)
     sample_design = design_summary(frame, design, [m for _, m in groups]) if design is not None else None
     answered = _labelled(frame, group)[list(spec.observed_names)].notna()
-    complete = int(answered.all(axis=1).sum())
+    every_item = answered.all(axis=1).to_numpy()
+    # complete rows that are complete only by values that look like no answers (the cautions' rows)
+    odd_rows = {row for odd in loaded.odd_values for row in odd.rows}
+    odd_complete = int(np.isin(row_numbers(answered)[every_item], list(odd_rows)).sum()) if odd_rows else 0
+    complete = int(every_item.sum()) - odd_complete
     empty = int((~answered.any(axis=1)).sum())
     coverage = {name: float(v) for name, v in answered.mean(axis=0).items()} if len(answered) else {}
-    return CheckResult(spec, source, len(answered), complete, len(answered) - complete - empty, empty, coverage,
-                       labels, bool(ordinal_items), sample_design,
+    return CheckResult(spec, source, len(answered), complete, len(answered) - complete - odd_complete - empty, empty,
+                       coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None, tuple(notes),
-                       odd_value_problems(loaded), len(frame) - len(answered))
+                       odd_value_problems(loaded), len(frame) - len(answered), odd_complete)
 

@@ -73,10 +73,12 @@ class CheckResult(Presentable):
     ordinal: bool = False  # ordinal items: rows with gaps are used through pairwise present rows
     design: object = None  # the sampling design (data.sample_design.SampleDesign) when one is given
     caution: str | None = None  # too few clusters for cluster-robust standard errors (the fit's Problem)
-    notes: tuple[str, ...] = ()  # rows the design leaves out (weight 0)
+    notes: tuple[str, ...] = ()  # row filters, rows the design leaves out (weight 0), group labels read as one
     #: values in the item columns that look like no answers (assessment.admissibility.Problem): first in every view
     problems: tuple = ()
     without_group: int = 0  # rows without a group label (left out)
+    #: rows that answer every model variable only if the values that look like no answers (``problems``) are answers
+    complete_by_odd_values: int = 0
 
     @property
     def admissible(self) -> bool:
@@ -91,7 +93,9 @@ class CheckResult(Presentable):
             lines.append(f"Groups: {len(self.groups)} ({', '.join(self.groups)}).")
         read = (f"{self.rows + self.without_group} read, {self.without_group} without a group label (left out), "
                 f"{self.rows} with one:" if self.without_group else f"{self.rows} read,")
-        lines.append(f"Rows: {read} {self.complete} complete, {self.with_gaps} with missing answers "
+        odd = (f" (and {self.complete_by_odd_values} complete only if the values that look like no answers, named "
+               f"above, are answers)" if self.complete_by_odd_values else "")
+        lines.append(f"Rows: {read} {self.complete} complete{odd}, {self.with_gaps} with missing answers "
                      f"({'used through pairwise present rows for ordinal items' if self.ordinal else 'used by full-information ML'}, "
                      f"the default), {self.empty} with no answer to any model variable.")
         low = sorted((v, k) for k, v in self.coverage.items() if v < 1)
@@ -103,16 +107,18 @@ class CheckResult(Presentable):
             lines.append(self.design.status()[0].upper() + self.design.status()[1:] + "; "
                          + ("sandwich standard errors and a scaled test in the fit" if self.design.columns.robust else
                             "each row counted as often as its weight in the fit") + ".")
-            lines.extend(f"Note: {note}." for note in self.notes)
+        lines.extend(f"Note: {note}." for note in self.notes)
         return "\n".join(lines)
 
     def to_dict(self) -> dict:
         return {"valid": True, "source": self.source, "factors": list(self.spec.factor_names),
                 "indicators": list(self.spec.observed_names), "rows": self.rows, "complete_rows": self.complete,
-                "rows_with_gaps": self.with_gaps, "rows_without_answers": self.empty, "coverage": dict(self.coverage),
+                "rows_with_gaps": self.with_gaps, "rows_without_answers": self.empty,
+                "complete_rows_by_values_not_answers": self.complete_by_odd_values, "coverage": dict(self.coverage),
                 "groups": list(self.groups) if self.groups else None,
                 "design": self.design.to_dict() if self.design is not None else None, "caution": self.caution,
-                "rows_without_group": self.without_group, "problems": [p.to_dict() for p in self.problems]}
+                "rows_without_group": self.without_group, "problems": [p.to_dict() for p in self.problems],
+                "notes": list(self.notes)}
 
 
 @dataclass(frozen=True)

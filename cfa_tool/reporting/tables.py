@@ -448,8 +448,11 @@ def missing_table(result) -> ReportTable | None:
     rows = [[named(p["not_answered"]), str(p["rows"])] for p in summary["patterns"][:8]]
     low = sorted(summary["coverage"].items(), key=lambda kv: kv[1])[:5]
     note = f"{summary['n_patterns']} patterns. Lowest coverage: " + ", ".join(f"{name} {100 * share:.1f}%" for name, share in low)
+    weights = summary.get("counted_by_weights")
+    if weights:
+        note += f". Rows are counted by their frequency weights ('{weights}'), as N is"
     return _table("missing", "Missing answers",
-                  [("Items not answered", "l"), ("Rows", "r")], rows, note)
+                  [("Items not answered", "l"), ("Rows, weighted" if weights else "Rows", "r")], rows, note)
 
 
 def modification_table(result, limit: int = 10) -> ReportTable | None:

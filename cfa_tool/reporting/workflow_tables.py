@@ -407,6 +407,8 @@ def replication_report(replications) -> Report:
                      "full-information discrepancy from the calibration covariance matrix, its means at their "
                      "maximum-likelihood values given that matrix.")
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
+    # the data's cautions first (the halves of one file: once), then the calibration fits'
+    cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
     return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), (), tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE))
 
@@ -655,8 +657,10 @@ def check_report(found) -> Report:
 
     lines = found.summary().splitlines()
     rows = [[name, "100%" if share >= 1 else _percent_below_all(share)] for name, share in found.coverage.items()]
+    counted = ("A value that looks like no answer (named above) counts as an answer here, as the fit would count it; "
+               "marked as missing (--missing-codes, or an empty cell), it would not." if found.problems else None)
     table = _table("coverage", "Share of rows answering each model variable", [("Variable", "l"), ("Answered", "r")],
-                   rows, values=(["Variable", "Share answering"], [[k, v] for k, v in found.coverage.items()]))
+                   rows, counted, values=(["Variable", "Share answering"], [[k, v] for k, v in found.coverage.items()]))
     notice = T.problem_notice(found)
     if notice is not None:
         notice = ProblemNotice(T.DATA_CAUTION, notice.lines, False)

@@ -12,6 +12,7 @@ from cfa_tool.pipeline.inputs import (_described, choose_missing_handling, desig
                                       odd_value_problems, odd_values_named,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_row_options, summary_source, with_design)
+from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.odd_values import odd_values
@@ -140,6 +141,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         else:
             complete = frame.dropna(subset=used)
         dropped = len(loaded.frame) - len(complete)  # rows with missing answers (or none) or without a group
+        if group is not None:
+            notes = list(notes) + label_notes(complete, group)
         if design is not None:
             complete, design_notes = check_design(complete, design, tuple(used), group, source)
             notes = list(notes) + design_notes

@@ -80,6 +80,8 @@ class ExploreResult(Presentable):
     split: SplitHalves | None = None
     notes: tuple[str, ...] = ()
     order: tuple[int, ...] = field(default=(), repr=False)  # items sorted by factor, then by loading
+    #: values in the item columns that look like no answers (assessment.admissibility.Problem): first in every view
+    data_problems: tuple = ()
 
     @property
     def factors(self) -> int:
@@ -96,7 +98,7 @@ class ExploreResult(Presentable):
     def problems(self) -> list[str]:
         """What makes the chosen solution doubtful, in plain words (every view shows these first)."""
         ex = self.exploration
-        out = []
+        out = [p.line() for p in self.data_problems]
         if not ex.solution.converged:
             out.append(f"The {ex.factors}-factor extraction did not converge; its loadings are not a solution.")
         if ex.solution.at_bound:
@@ -125,6 +127,7 @@ class ExploreResult(Presentable):
         pa = count.parallel
         out = {
             "problems": self.problems(),
+            "data_problems": [p.to_dict() for p in self.data_problems],
             "data": {"source": self.source, "rows_read": self.rows_read, "rows_used": ex.data.n_obs,
                      "correlations": ex.data.kind.value},
             "items": list(self.items),
@@ -208,8 +211,12 @@ def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str
         ends = piece.split("..") if ".." in piece and piece not in columns else [piece]
         for end in ends:
             if end not in columns:
-                from cfa_tool.suggest import close_names
+                from cfa_tool.suggest import close_names, dotted_span
 
+                span = dotted_span(end)
+                if span is not None and all(e in columns for e in span.split("..")):
+                    raise OptionError(f"items: {source} has no column '{printable(end)}'; a span of columns is "
+                                      f"written with two dots: '{printable(span)}'")
                 guess = close_names(end, columns)
                 raise OptionError(f"items: {source} has no column '{printable(end)}'"
                                   + (f"; did you mean '{printable(guess[0])}'?" if guess else ""))
@@ -233,6 +240,30 @@ def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str
 def _numeric_columns(frame: pd.DataFrame) -> tuple[str, ...]:
     return tuple(str(c) for c in frame.columns if pd.api.types.is_numeric_dtype(frame[c]) and not
                  pd.api.types.is_bool_dtype(frame[c]))
+
+
+#: words that name a column's part in the data other than answers (the sampling design, ids, groups): a column
+#: whose name is one of them, or has one as a word of its own ('final_weight', 'respondent_id'; 'w1' has none), is
+#: left out of explore's default items
+COLUMN_ROLE_WORDS = {
+    "weights": ("weight", "weights", "wt", "wgt", "w", "fw", "pw", "pweight", "fweight", "freq", "frequency"),
+    "clusters": ("cluster", "clusters", "psu"),
+    "strata": ("stratum", "strata"),
+    "ids": ("id", "ids", "identifier"),
+    "groups": ("group", "grp"),
+}
+_ROLE_OF_WORD = {word: role for role, words in COLUMN_ROLE_WORDS.items() for word in words}
+
+
+def column_role(name: str) -> str | None:
+    """The part a column plays by its name (a key of COLUMN_ROLE_WORDS), or None for a column that may hold
+    answers.  The name is split into words at spaces, underscores, dots and hyphens."""
+    import re
+
+    for word in re.split(r"[\s_.\-]+", name.casefold()):
+        if word in _ROLE_OF_WORD:
+            return _ROLE_OF_WORD[word]
+    return None
 
 
 def _looks_like_row_ids(column: pd.Series) -> bool:
@@ -261,7 +292,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
     ``items``: column names, or text 'a, b, c' with 'a..b' for a span of columns (default: every column that
-    holds numbers); ``factors``: a whole number, or None / 'auto' for the recommended number; ``rotation``:
+    holds numbers, except row numbers or ids and columns whose names say they are weights, clusters, strata, ids
+    or groups, see :func:`column_role`); ``factors``: a whole number, or None / 'auto' for the recommended number; ``rotation``:
     varimax, quartimin (default), oblimin, geomin, promax, target (with ``target``: a matrix with NaN where
     unspecified, or the path of a target file, exploration.target_file, whose columns give the number of
     factors) or none; ``extraction``: maximum-likelihood (default) or least-squares; ``ordinal``: 'all' or
@@ -294,10 +326,14 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     if chosen is None:
         numeric = _numeric_columns(frame)
         ids = [c for c in numeric if _looks_like_row_ids(frame[c])]
-        chosen = tuple(c for c in numeric if c not in ids)
+        roles = [c for c in numeric if c not in ids and column_role(c) is not None]
+        chosen = tuple(c for c in numeric if c not in ids and c not in roles)
         notes.append(f"Items: every column of {source} that holds numbers ({len(chosen)}); choose them with --items."
-                     + (f" Left out as row numbers or ids (every value a different whole number): {', '.join(ids)}."
-                        if ids else "")
+                     + (f" Left out as row numbers or ids (every value a different whole number): "
+                        f"{', '.join(printable(c) for c in ids)}." if ids else "")
+                     + (" Left out by their names, as columns of the sampling design, ids or groups rather than "
+                        "answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
+                        + " (name them in --items to explore them)." if roles else "")
                      + " Check that no other column (age, grade, a code) is among the items.")
     requested = _factor_choice(factors)
     rotation_method = options.choice(RotationMethod, rotation, "the rotation")
@@ -320,6 +356,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
             raise OptionError(f"--factors asks for {requested} factors, and the target file {target_file.source} has "
                               f"{len(target_file.factors)} factor columns")
     ordinal_items = _ordinal_items(ordinal, chosen)
+    # values that look like no answers among the rows read (both halves of a split): first in every view
+    data_problems = api.odd_value_problems(api.screened(frame, tuple(chosen), source))
     halves = None
     if split is not None:
         split = options.seed(split)
@@ -348,7 +386,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     if halves is not None:
         split_result = _confirm(exploration, halves, split, source, ordinal_items)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
-                         sorted_items(exploration))
+                         sorted_items(exploration), data_problems)
 
 
 def _ordinal_items(ordinal, items: tuple[str, ...]) -> tuple[str, ...]:
@@ -359,7 +397,10 @@ def _ordinal_items(ordinal, items: tuple[str, ...]) -> tuple[str, ...]:
     names = [ordinal] if isinstance(ordinal, str) else list(ordinal)
     for name in names:
         if name not in items:
-            raise OptionError(f"'{printable(name)}' is given as ordinal but is not one of the items explored")
+            from cfa_tool.suggest import one_by_one
+
+            raise OptionError(f"'{printable(name)}' is given as ordinal but is not one of the items explored"
+                              + one_by_one(name))
     return tuple(names)
 
 

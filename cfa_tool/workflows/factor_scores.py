@@ -401,6 +401,10 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     with_errors = bool(standard_errors or ordinal)  # a posterior mean always comes with its posterior SD
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names")
+    if group is not None:
+        from cfa_tool.data.labels import label_notes
+
+        notes += label_notes(frame, group)
     if ordinal:
         quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, frame.index,
                                    group_of_row, group)

@@ -35,7 +35,8 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import load_frame, load_spec, make_options, refit_missing_handling
+from cfa_tool.pipeline.inputs import (load_frame, load_spec, make_options, odd_value_problems, odd_values_named,
+                                      refit_missing_handling, screened)
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, sample_moments
@@ -63,6 +64,8 @@ class Replication(Presentable):
     cvi_saturated: float
     #: ordinal items: every chi-square is the scale-shifted adjusted one of the least-squares fit
     adjusted: bool = False
+    #: values in the item columns of either data set that look like no answers (assessment.admissibility.Problem)
+    data_problems: tuple = ()
 
     def to_dict(self) -> dict:
         loose = self.loose.fit.to_dict() if self.loose.fit is not None else None
@@ -71,6 +74,7 @@ class Replication(Presentable):
             return result.robust.to_dict() if self.adjusted and result.robust is not None else None
 
         return clean({
+            "data_problems": [p.to_dict() for p in self.data_problems],
             "calibration": {"data": self.calibration, "n_obs": self.calibration_result.n_obs,
                             "admissible": self.calibration_result.admissible,
                             "problems": [p.to_dict() for p in self.calibration_result.problems],
@@ -209,33 +213,51 @@ def _same_file(first, second) -> bool:
 
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
-              **options) -> Replication:
+              sheet: str | None = None, missing_codes: tuple[float, ...] = (), **options) -> Replication:
     """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
-    their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too)."""
+    their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too);
+    ``sheet`` and ``missing_codes`` apply to both files, as for ``fit``."""
     spec = load_spec(model)
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator, options if missing is None else {**options, "missing": missing})
     if _same_file(calibration, validation):
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           "new data (or give one file as --data to split it in two random halves)")
-    cal_frame, cal_source = load_frame(calibration)
-    val_frame, val_source = load_frame(validation)
-    if ordinal_items:
-        return replicate_ordinal(spec, _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise),
-                                 _ordinal_moments(spec, val_frame, val_source, ordinal_items, pairwise), method, **options)
-    return replicate_moments(spec, _moments(spec, cal_frame, cal_source, missing),
-                             _moments(spec, val_frame, val_source, missing), **options)
+    cal_frame, cal_source = load_frame(calibration, sheet, missing_codes)
+    val_frame, val_source = load_frame(validation, sheet, missing_codes)
+    for frame, source in ((cal_frame, cal_source), (val_frame, val_source)):
+        check_columns(spec, [str(c) for c in frame.columns], source)
+    screens = [screened(frame, spec.observed_names, source)
+               for frame, source in ((cal_frame, cal_source), (val_frame, val_source))]
+    with odd_values_named(next((s for s in screens if s.odd_values), screens[0])):
+        if ordinal_items:
+            result = replicate_ordinal(spec, _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise),
+                                       _ordinal_moments(spec, val_frame, val_source, ordinal_items, pairwise), method,
+                                       **options)
+        else:
+            result = replicate_moments(spec, _moments(spec, cal_frame, cal_source, missing),
+                                       _moments(spec, val_frame, val_source, missing), **options)
+    return replace(result, data_problems=sum((odd_value_problems(s) for s in screens), ()))
 
 
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1,
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
-               **options) -> tuple[Replication, Replication]:
+               sheet: str | None = None, missing_codes: tuple[float, ...] = (), **options) -> tuple[Replication, Replication]:
     """Random halves A and B (seeded) of the rows analysed (with continuous items and gaps, every row with an
     answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse."""
     seed = check.seed(seed)
     spec = load_spec(model)
     ordinal_items, method, _ = _ordinal_setup(spec, ordinal, ordinal_estimator, options if missing is None else {**options, "missing": missing})
-    frame, source = load_frame(data)
+    frame, source = load_frame(data, sheet, missing_codes)
     check_columns(spec, [str(c) for c in frame.columns], source)
+    screen = screened(frame, spec.observed_names, source)
+    with odd_values_named(screen):
+        pair = _split_half(spec, frame, source, seed, ordinal_items, method, missing, **options)
+    problems = odd_value_problems(screen)
+    return tuple(replace(rep, data_problems=problems) for rep in pair)
+
+
+def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal_items, method, missing,
+                **options) -> tuple[Replication, Replication]:
     handling = MissingData.LISTWISE
     if not ordinal_items:
         handling, _ = refit_missing_handling(frame, spec.observed_names, missing)

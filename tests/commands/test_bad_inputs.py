@@ -130,7 +130,7 @@ def test_json_to_a_symbolic_link_replaces_the_target_and_keeps_the_link(corpus, 
     (corpus / "link.json").symlink_to("target.json")
     command = ["fit", "models/good.cfa", "--data", "data/good.csv", "--json", "link.json"]
     code, _, err = _run(command, capsys)  # the target is a file the tool did not write: left alone
-    assert code == 2 and "was not written by cfa-tool" in err
+    assert code == 2 and "'link.json' is a symbolic link to '" in err and "target.json', which was not written by" in err
     assert (corpus / "target.json").read_text() == "old"
     (corpus / "target.json").unlink()
     for _ in range(2):  # written through the link, then replaced: the tool wrote it
@@ -303,3 +303,28 @@ def test_escape_sequences_never_reach_the_terminal(corpus, capsys):
     assert "\\x1b[2Jcleared" in out and "\\x1b[2Jb\\x1b]0;title\\x07" in out
     code, out, err = _run(["fit", "models/escape_in_name.cfa", "--data", "data/good.csv"], capsys)
     assert code == 2 and "\x1b" not in err
+
+
+def test_a_link_to_a_file_in_a_folder_that_does_not_exist_is_named_with_its_target(corpus, capsys):
+    (corpus / "dangling.html").symlink_to("/nonexistent/folder/x.html")
+    before = _snapshot(corpus)
+    code, _, err = _run(["fit", "models/good.cfa", "--data", "data/good.csv", "--html", "dangling.html"], capsys)
+    _check(code, err, 2, ["--html: cannot write 'dangling.html': it is a symbolic link to '/nonexistent/folder/x.html', "
+                          "whose folder '/nonexistent/folder' does not exist"], before, corpus)
+
+
+@pytest.mark.parametrize("command", [["fit", "models/good.cfa"], ["check", "models/good.cfa"],
+                                     ["explore", "--items", "q1..q6"]])
+def test_a_table_folder_is_made_only_inside_an_existing_folder(corpus, capsys, command):
+    # as for every file output, the folder a new table folder goes into must exist: no folders made on the way
+    before = _snapshot(corpus)
+    code, _, err = _run([*command, "--data", "data/good.csv", "--tables", "new/tables"], capsys)
+    _check(code, err, 2, ["--tables: cannot create the folder 'new/tables': the folder 'new' does not exist"], before,
+           corpus)
+    assert not (corpus / "new").exists()
+    (corpus / "gone").symlink_to("/nonexistent/tables")
+    code, _, err = _run([*command, "--data", "data/good.csv", "--tables", "gone"], capsys)
+    assert code == 2 and "'gone' is a symbolic link to '/nonexistent/tables', which does not exist" in err
+    code, _, err = _run([*command, "--data", "data/good.csv", "--tables", "tables"], capsys)
+    assert code == 0, err  # a new folder inside an existing one
+    assert (corpus / "tables").is_dir()

@@ -181,3 +181,23 @@ def test_an_id_column_is_not_taken_for_an_item(hs_data):
     assert "id" not in result.to_dict()["items"]
     note = next(n for n in result.notes if n.startswith("Items:"))
     assert "Left out as row numbers or ids (every value a different whole number): id." in note
+
+
+def test_design_id_and_group_columns_are_not_taken_for_items_and_are_named(hs_data):
+    # a weights column (sampling weights of an invented design), a cluster code and a group number beside the
+    # nine tests: explore's default items are the tests, and the note names what was left out and why
+    from cfa_tool.workflows.explore import column_role, explore
+
+    rng = np.random.default_rng(5)
+    data = hs_data.assign(final_weight=rng.uniform(0.5, 2.0, len(hs_data)).round(3),
+                          psu=rng.integers(1, 20, len(hs_data)), grp=rng.integers(1, 3, len(hs_data)))
+    result = explore(data[[f"x{i}" for i in range(1, 10)] + ["final_weight", "psu", "grp"]], factors=3,
+                     replications=10)
+    assert result.to_dict()["items"] == [f"x{i}" for i in range(1, 10)]
+    note = next(n for n in result.notes if n.startswith("Items:"))
+    assert ("Left out by their names, as columns of the sampling design, ids or groups rather than answers: "
+            "final_weight (weights), psu (clusters), grp (groups) (name them in --items to explore them).") in note
+    assert [column_role(n) for n in ("w", "w1", "wt 2023", "respondent_id", "stratum", "wlb2")] == \
+        ["weights", None, "weights", "ids", "strata", None]
+    named = explore(data, items="x1..x9, final_weight", factors=3, replications=10)  # named: explored
+    assert "final_weight" in named.to_dict()["items"]

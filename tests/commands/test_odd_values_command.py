@@ -49,6 +49,19 @@ def test_check_shows_a_forgotten_code_before_its_tables(tmp_path, capsys):
     assert caution < out.index("Model check") < out.index("Share of rows answering")
     assert "data rows 3, 31, 100" in out and "--missing-codes -99" in out
     assert "values that look like no answers" in (tmp_path / "check.json").read_text()
+    # the counts agree with the caution: the three rows are complete only if -99 is an answer
+    frame = pd.read_csv(DEMO)
+    items = [c for c in frame.columns if c not in ("rider_id", "district")]
+    complete = int(frame[items].notna().all(axis=1).sum())  # the demo file's complete rows (pandas' count)
+    saved = json.loads((tmp_path / "check.json").read_text())
+    coded_complete = int(frame.loc[[2, 30, 99], items].notna().all(axis=1).sum())
+    assert coded_complete and saved["complete_rows"] == complete - coded_complete
+    assert saved["complete_rows_by_values_not_answers"] == coded_complete
+    assert (f"{complete - coded_complete} complete (and {coded_complete} complete only if the values that look like "
+            f"no answers, named above, are answers)") in out
+    assert "counts as an answer here, as the fit would count it" in out
+    code, out, _ = _run(["check", MODEL, "--data", data, "--missing-codes", "-99"], capsys)
+    assert code == 0 and "complete only if" not in out and "looks like no answer" not in out
 
 
 def test_fit_cautions_first_and_still_fits(tmp_path, capsys):
@@ -99,9 +112,31 @@ def test_compare_and_scores_caution_first(tmp_path, capsys):
     (["cutoffs", "--replications", "20", "--seed", "1"], "Model-specific fit cutoffs"),
     (["invariance", "--group-column", "district"], "Measurement invariance across"),
     (["align", "--group-column", "district"], "Alignment across"),
-], ids=["bootstrap", "cutoffs", "invariance", "align"])
+    (["replicate", "--seed", "2"], "Replication in two random halves"),
+], ids=["bootstrap", "cutoffs", "invariance", "align", "replicate"])
 def test_every_command_that_reads_the_data_cautions_first(command, title, tmp_path, capsys):
     data = _with_code(tmp_path)
     code, out, _ = _run([command[0], MODEL, "--data", data, *command[1:]], capsys)
     out = " ".join(out.replace("│", " ").split())
     assert code == 0 and out.index("The item column clean of coded.csv holds the value -99") < out.index(title)
+
+
+def test_explore_and_replicate_of_two_files_caution_first(tmp_path, capsys):
+    data = _with_code(tmp_path)
+    code, out, err = _run(["explore", "--data", data, "--json", tmp_path / "explore.json"], capsys)
+    out = " ".join(out.replace("┃", " ").split())
+    assert code == 0, err
+    assert out.index("The item column clean of coded.csv holds the value -99") < out.index("Exploratory factor analysis")
+    saved = json.loads((tmp_path / "explore.json").read_text())
+    assert saved["data_problems"][0]["kind"] == "values that look like no answers"
+    assert "data rows 3, 31, 100" in saved["problems"][0]
+    code, out, err = _run(["replicate", MODEL, "--calibration", data, "--validation", DEMO, "--json",
+                           tmp_path / "replicate.json"], capsys)
+    out = " ".join(out.replace("│", " ").split())
+    assert code == 0, err
+    assert out.index("The item column clean of coded.csv holds the value -99") < out.index("Replication")
+    saved = json.loads((tmp_path / "replicate.json").read_text())
+    assert len(saved["replications"][0]["data_problems"]) == 1  # the calibration file's; the validation file has none
+    code, out, err = _run(["replicate", MODEL, "--calibration", data, "--validation", DEMO, "--missing-codes", "-99"],
+                          capsys)
+    assert code == 0 and "holds the value -99" not in out  # the advice's option is there

@@ -177,6 +177,37 @@ def test_row_filters(hs_data, hs_three):
         cfa_tool.fit(THREE_FACTORS, hs_data, keep=["ageyr > 99"])
 
 
+def test_row_filter_with_a_space_inside_an_operator_says_where():
+    from cfa_tool.data.filters import parse_filter
+
+    with pytest.raises(OptionError, match=r"the operator at character 7 has a space inside \('> ='\); write '>='"):
+        parse_filter("ageyr > = 13")
+    with pytest.raises(OptionError, match="a second operator '<' at character 10; put a value that begins with '<' in "
+                                          "quotes"):
+        parse_filter("school = <b>")
+    with pytest.raises(OptionError, match="unknown operator '<>'"):
+        parse_filter("ageyr <> 13")
+    assert parse_filter('school = "<b>"').value == "<b>"  # the way out the message names
+
+
+def test_row_filter_of_a_value_no_row_has_lists_the_values_nearest_first(hs_data):
+    with pytest.raises(DataError, match=r"no row has 'pasteur' in 'school' \(values present: Pasteur, Grant-White\)"):
+        cfa_tool.fit(THREE_FACTORS, hs_data, keep=["school = pasteur"])
+    kept_all = cfa_tool.fit(THREE_FACTORS, hs_data, keep=["school != pasteur"])
+    assert any("kept 301 of 301 rows; no row has 'pasteur'" in w for w in kept_all.warnings)
+    with pytest.raises(DataError, match=r"values present: 13, 14, 12, 15, 11, 16\)"):
+        cfa_tool.fit(THREE_FACTORS, hs_data, keep=["ageyr = 13.2"])
+
+
+def test_row_filter_on_true_and_false_cells_reads_them_as_spreadsheets_write_them(hs_data):
+    flagged = hs_data.assign(retested=hs_data["id"] % 2 == 0)  # a TRUE/FALSE column, as a CSV reader gives it
+    for value in ("TRUE", "true", "True"):
+        kept = cfa_tool.fit(THREE_FACTORS, flagged, keep=[f"retested = {value}"])
+        assert kept.n_obs == int(flagged["retested"].sum())
+    with pytest.raises(DataError, match=r"values present: FALSE, TRUE\)"):
+        cfa_tool.fit(THREE_FACTORS, flagged, keep=["retested = yes"])
+
+
 def test_filters_are_never_evaluated(hs_data):
     # a filter that would be code in a language is only ever compared as text
     with pytest.raises(DataError, match="no row is left"):

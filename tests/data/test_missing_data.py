@@ -124,6 +124,27 @@ def test_missing_data_summary_and_cli():
     assert 0.97 < min(summary["coverage"].values()) < 1.0
 
 
+def test_frequency_weights_count_rows_in_the_missing_data_table(hs_holes):
+    """Under frequency weights the table counts rows as N does: the same patterns, counts and coverage as the
+    data set with every row repeated as often as its weight (expanded by pandas, an independent count)."""
+    weighted = hs_holes.assign(copies=1 + np.arange(len(hs_holes)) % 3)
+    expanded = weighted.loc[weighted.index.repeat(weighted["copies"])].reset_index(drop=True)
+    by_weight = cfa_tool.fit(THREE_FACTORS, weighted, weights="copies", weight_kind="frequency")
+    repeated = cfa_tool.fit(THREE_FACTORS, expanded)
+    assert by_weight.n_obs == repeated.n_obs == int(weighted["copies"].sum())
+    assert by_weight.missing_data["patterns"] == repeated.missing_data["patterns"]
+    assert by_weight.missing_data["coverage"] == pytest.approx(repeated.missing_data["coverage"], abs=1e-12)
+    assert by_weight.missing_data["counted_by_weights"] == "copies"
+    assert "counted_by_weights" not in repeated.missing_data
+    from cfa_tool.reporting.tables import missing_table
+
+    table = missing_table(by_weight)
+    assert table.columns[1] == "Rows, weighted"
+    assert "counted by their frequency weights ('copies'), as N is" in table.note
+    sampling = cfa_tool.fit(THREE_FACTORS, weighted, weights="copies")  # sampling weights: N is the rows
+    assert sampling.missing_data["patterns"][0]["rows"] == int((~hs_holes[ITEMS].isna().any(axis=1)).sum())
+
+
 def test_satorra_bentler_is_refused_with_fiml(hs_holes):
     from cfa_tool.errors import OptionError
 

@@ -1,0 +1,89 @@
+"""Group labels that differ only by spaces at their ends (or Unicode form) are one group, and every command with
+groups says so once, in one note naming the labels merged."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.data.labels import label_notes
+
+MODEL = "factor f: y1, y2, y3, y4\n"
+NOTE = "labels that differ only by spaces at their ends or by Unicode form were read as one group"
+
+
+@pytest.fixture(scope="module")
+def spaced() -> pd.DataFrame:
+    """Three groups of 150 simulated rows (seed 11); every fifth label of 'north' and 'south' carries a trailing
+    space, as exports from forms often do."""
+    rng = np.random.default_rng(11)
+    f = rng.normal(size=450)
+    frame = pd.DataFrame({f"y{j}": np.round(0.8 * f + rng.normal(scale=0.6, size=450), 2) for j in range(1, 5)})
+    labels = np.repeat(["north", "south", "west"], 150).astype(object)
+    labels[(np.arange(450) % 5 == 0) & (labels != "west")] += " "
+    frame["area"] = labels
+    return frame
+
+
+def _merged(notes) -> list[str]:
+    found = [n for n in notes if NOTE in n]
+    assert len(found) == 1, notes  # said once
+    assert "'north' and 'north ' as 'north'; 'south' and 'south ' as 'south'" in found[0]
+    return found
+
+
+def test_the_note_names_every_merged_label_once(spaced):
+    assert label_notes(spaced, "area")[0] == (f"in the group column 'area', {NOTE}: 'north' and 'north ' as 'north'; "
+                                              "'south' and 'south ' as 'south'")
+    assert label_notes(spaced.assign(area=spaced["area"].str.strip()), "area") == []
+
+
+def test_fit_check_and_compare_say_which_labels_were_merged(spaced):
+    fitted = cfa_tool.fit(MODEL, spaced, group="area")
+    assert [g.label for g in fitted.groups] == ["north", "south", "west"]
+    assert [g.data.n_obs for g in fitted.groups] == [150, 150, 150]
+    _merged(fitted.warnings)
+    checked = cfa_tool.check(MODEL, spaced, group="area")
+    assert checked.groups == ("north", "south", "west")
+    _merged(checked.notes)
+    assert NOTE in checked.summary()
+    compared = cfa_tool.compare([MODEL, "factor f: y1, y2, y3, y4\nequal loading(f, y1), loading(f, y2)\n"], spaced,
+                                group="area")
+    _merged(compared.notes)
+
+
+def test_ordinal_and_invariance_paths_say_it_too(spaced):
+    answers = spaced.assign(**{c: pd.cut(spaced[c], [-np.inf, -0.5, 0.5, np.inf], labels=False) + 1
+                               for c in ["y1", "y2", "y3", "y4"]})
+    _merged(cfa_tool.fit(MODEL, answers, group="area", ordinal="all").warnings)
+    _merged(cfa_tool.compare([MODEL, MODEL.replace("factor f", "factor g")], answers, group="area",
+                             ordinal="all").notes)
+    ladder = cfa_tool.invariance(MODEL, spaced, group="area")
+    assert ladder.groups == ("north", "south", "west")
+    _merged(ladder.warnings)
+
+
+def test_a_reference_group_is_read_as_the_labels_are(spaced):
+    fitted = cfa_tool.fit(MODEL, spaced, group="area", reference_group="south ")
+    assert fitted.groups[0].label == "south"
+
+
+def test_cluster_and_stratum_labels_are_read_as_group_labels_are(spaced):
+    # 30 clusters in 3 strata; every seventh row's cluster and stratum written with a trailing space: the same
+    # design (30 clusters, the same sandwich standard errors) as the clean labels, and a note for each column
+    clean = spaced.assign(school=[f"s{i % 30}" for i in range(len(spaced))],
+                          region=[f"r{i % 3}" for i in range(len(spaced))])
+    messy = clean.copy()
+    messy.loc[messy.index[::7], "school"] += " "
+    messy.loc[messy.index[1::7], "region"] += " "
+    a = cfa_tool.fit(MODEL, clean, cluster="school", strata="region")
+    b = cfa_tool.fit(MODEL, messy, cluster="school", strata="region")
+    assert (b.design.clusters, b.design.strata) == (a.design.clusters, a.design.strata) == (30, 3)
+    assert [r.se for r in b.estimates] == pytest.approx([r.se for r in a.estimates], rel=1e-12, nan_ok=True)
+    notes = [w for w in b.warnings if "were read as one" in w]
+    assert len(notes) == 2
+    assert notes[0].startswith("in the cluster column 'school', labels that differ only by spaces at their ends or by "
+                               "Unicode form were read as one cluster: 's0' and 's0 ' as 's0'")
+    assert notes[1].startswith("in the strata column 'region'") and "were read as one stratum" in notes[1]
