@@ -72,9 +72,11 @@ def _second_operator(text: str, start: int, op: str, position: int) -> str:
     return f"{where}: unknown operator '{joined}'; the operators are {' '.join(OPERATORS)}"
 
 
-def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str) -> tuple[pd.DataFrame, list[str]]:
+def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
+                  value_labels: dict[str, dict] | None = None) -> tuple[pd.DataFrame, list[str]]:
     """Keep the rows that meet every filter; notes say how many each filter left out.  Text is compared
-    as labels are read everywhere (spaces at the ends and Unicode forms ignored)."""
+    as labels are read everywhere (spaces at the ends and Unicode forms ignored); a text value compared with a
+    column of codes that carry value labels (SPSS, Stata) is compared with the codes' labels."""
     notes = []
     for f in filters:
         if f.column not in frame.columns:
@@ -82,6 +84,11 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str) ->
             hint = f"; did you mean '{guess[0]}'?" if guess else ""
             raise OptionError(f"row filter '{printable(f)}': {source} has no column '{printable(f.column)}'{hint}")
         column = frame[f.column]
+        labels = (value_labels or {}).get(f.column)
+        by_label = ""
+        if labels and not isinstance(f.value, float) and f.operator in ("=", "!="):
+            column = column.map(lambda v: labels.get(v, v) if pd.notna(v) else v)  # codes -> their labels
+            by_label = f" (compared with the value labels of '{printable(f.column)}')"
         numeric = pd.to_numeric(column, errors="coerce") if column.dtype.kind in "iuf" else \
             column.map(lambda v: np.nan if pd.isna(v) else _number_or_nan(v))
         if isinstance(f.value, float) and numeric.notna().sum() == column.notna().sum():
@@ -109,7 +116,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str) ->
                       f"{_present(values, target)})")
         before = len(frame)
         frame = frame.loc[keep.to_numpy()]
-        notes.append(f"row filter '{f}' kept {len(frame)} of {before} rows{absent}")
+        notes.append(f"row filter '{f}'{by_label} kept {len(frame)} of {before} rows{absent}")
         if len(frame) == 0:
             raise DataError(f"{source}: no row is left after the row filter '{printable(f)}'{absent}")
     return frame, notes

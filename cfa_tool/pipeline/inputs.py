@@ -150,7 +150,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     notes: list[str] = list(loaded.notes)
     filters = [parse_filter(k) for k in keep]
     if filters:
-        frame, filter_notes = apply_filters(frame, filters, loaded.source)
+        frame, filter_notes = apply_filters(frame, filters, loaded.source, loaded.value_labels)
         notes += filter_notes
     check_columns(spec, columns, loaded.source)
     check_declared_ranges(spec, frame, loaded.source)

@@ -361,7 +361,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     frame, notes = read_frame, []
     keep = api.keep_option(keep)
     if keep:
-        frame, notes = apply_filters(read_frame, [parse_filter(k) for k in keep], source)
+        frame, notes = apply_filters(read_frame, [parse_filter(k) for k in keep], source, loaded.value_labels)
     from cfa_tool.scoring.model import OrdinalScoringModel
 
     ordinal = isinstance(models[0], OrdinalScoringModel)

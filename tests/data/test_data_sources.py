@@ -38,6 +38,22 @@ def test_spss_file_with_value_labels_and_user_missing_codes(tmp_path, hs_items):
     assert rated.labels["values"]["rating"][5.0] == "strongly agree"
 
 
+def test_a_row_filter_by_a_value_label_of_an_spss_file(tmp_path, hs_items):
+    # '--keep "school != Pasteur"' on a file where school is stored as codes 1/2 with value labels: compared with
+    # the labels (it kept every row silently before: the code 2 is never the text 'Pasteur'; new-user trial)
+    import pyreadstat
+
+    data = hs_items[ITEMS].round(4).copy()
+    data["school"] = (hs_items["school"] == "Pasteur").astype(float) + 1
+    path = tmp_path / "hs_codes.sav"
+    pyreadstat.write_sav(data, str(path), variable_value_labels={"school": {1: "Grant-White", 2: "Pasteur"}})
+    result = cfa_tool.fit(THREE_FACTORS, path, keep=["school != Pasteur"])
+    assert result.n_obs == int((hs_items["school"] == "Grant-White").sum()) == 145
+    assert any("compared with the value labels of 'school'" in w for w in result.warnings)
+    by_code = cfa_tool.fit(THREE_FACTORS, path, keep=["school = 1.0"])  # a number still compares with the codes
+    assert by_code.n_obs == 145
+
+
 def test_stata_file(tmp_path, hs_items, hs_three):
     import pyreadstat
 
