@@ -146,6 +146,16 @@ def row_problem(result, kind: str, variables: tuple[str, ...], group: str | None
     return ""
 
 
+#: how the fit table marks the figures of the normal-theory test beside a robust or adjusted one
+UNADJUSTED = "unadjusted"
+
+
+def _unadjusted(label: str) -> str:
+    """'RMSEA [90% interval]' -> 'RMSEA (unadjusted) [90% interval]'."""
+    cut = label.find(" [")
+    return f"{label} ({UNADJUSTED})" if cut < 0 else f"{label[:cut]} ({UNADJUSTED}){label[cut:]}"
+
+
 def fit_table(result) -> ReportTable:
     f = result.fit
     low, high = f.rmsea_ci90
@@ -165,13 +175,17 @@ def fit_table(result) -> ReportTable:
     r = result.robust
     if r is not None:
         rlow, rhigh = r.rmsea_robust_ci90
-        rows += [
+        robust = [
             [f"Scaled chi-square ({r.test.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, p {p_phrase(r.p_value_scaled)}",
              "the test to read for these data"],
             _correction_row(r),
             ["Robust CFI / TLI", f"{index_text(r.cfi_robust)} / {index_text(r.tli_robust)}", ">= .95"],
             ["Robust RMSEA [90% interval]", f"{index_text(r.rmsea_robust)} [{unit(rlow)}, {unit(rhigh)}]", "<= .06"],
         ]
+        # the figures to read first; the unadjusted ones after SRMR, marked, without guide values
+        srmr = rows.pop()
+        rows = robust + [srmr] + [[_unadjusted(label), value, "for reference only"] for label, value, _ in rows
+                                  if (label != "Chi-square test" or f.df > 0) and not label.startswith("  test of close")]
     rows.append(["Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", ""])
     if not missing(f.log_likelihood):  # least-squares estimators have no likelihood
         rows += [["Log-likelihood", num(f.log_likelihood), ""],
@@ -204,18 +218,22 @@ def robust_definition(r) -> str:
 def _fit_values(result) -> list[list]:
     """The fit table's numbers, one index per row (for data files)."""
     f, r, nan = result.fit, result.robust, None
-    rows = [["Chi-square", f.chi_square, f.df, f.p_value, nan, nan]]
+    plain = [["Chi-square", f.chi_square, f.df, f.p_value, nan, nan]]
     if f.df > 0:
-        rows += [["CFI", f.cfi, nan, nan, nan, nan], ["TLI", f.tli, nan, nan, nan, nan],
-                 ["RMSEA", f.rmsea, nan, nan, *f.rmsea_ci90]]
+        plain += [["CFI", f.cfi, nan, nan, nan, nan], ["TLI", f.tli, nan, nan, nan, nan],
+                  ["RMSEA", f.rmsea, nan, nan, *f.rmsea_ci90]]
         if not missing(f.rmsea_p_close):
-            rows.append(["Test of close fit (RMSEA <= .05)", nan, nan, f.rmsea_p_close, nan, nan])
-    rows.append(["SRMR", f.srmr, nan, nan, nan, nan])
-    if r is not None:
-        rows += [[f"Scaled chi-square ({r.test.label})", r.chi_square_scaled, r.df, r.p_value_scaled, nan, nan],
-                 *[[name.capitalize(), value, nan, nan, nan, nan] for name, value in r.pieces],
-                 ["Robust CFI", r.cfi_robust, nan, nan, nan, nan], ["Robust TLI", r.tli_robust, nan, nan, nan, nan],
-                 ["Robust RMSEA", r.rmsea_robust, nan, nan, *r.rmsea_robust_ci90]]
+            plain.append(["Test of close fit (RMSEA <= .05)", nan, nan, f.rmsea_p_close, nan, nan])
+    srmr = ["SRMR", f.srmr, nan, nan, nan, nan]
+    if r is None:
+        rows = plain + [srmr]
+    else:  # as the table shows them: the robust figures first, the unadjusted ones after SRMR, marked
+        rows = [[f"Scaled chi-square ({r.test.label})", r.chi_square_scaled, r.df, r.p_value_scaled, nan, nan],
+                *[[name.capitalize(), value, nan, nan, nan, nan] for name, value in r.pieces],
+                ["Robust CFI", r.cfi_robust, nan, nan, nan, nan], ["Robust TLI", r.tli_robust, nan, nan, nan, nan],
+                ["Robust RMSEA", r.rmsea_robust, nan, nan, *r.rmsea_robust_ci90], srmr,
+                *[[_unadjusted(row[0]), *row[1:]] for row in plain
+                  if (row[0] != "Chi-square" or f.df > 0) and not row[0].startswith("Test of close")]]
     rows.append(["Baseline (independence) chi-square", f.baseline_chi_square, f.baseline_df, nan, nan, nan])
     if not missing(f.log_likelihood):
         rows += [["Log-likelihood", f.log_likelihood, nan, nan, nan, nan], ["AIC", f.aic, nan, nan, nan, nan],

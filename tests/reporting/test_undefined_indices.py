@@ -24,3 +24,16 @@ def test_an_undefined_robust_tli_is_said_to_be_so(hs_data):
     row = next(r for r in T.fit_table(result).rows if r[0] == "Robust CFI / TLI")
     assert row[1].endswith("/ not defined")
     assert "robust TLI = not defined," in methods_paragraph(result)
+
+
+def test_a_robust_fit_shows_its_robust_figures_first_and_marks_the_unadjusted_ones(hs_data):
+    # the figures to read come first; the normal-theory ones follow, marked and without guide values (new-user trial)
+    fitted = cfa_tool.fit(THREE_FACTORS, hs_data, test="satorra-bentler")
+    table = T.fit_table(fitted)
+    labels = [row[0] for row in table.rows]
+    assert labels[0].startswith("Scaled chi-square") and labels.index("SRMR") < labels.index("CFI (unadjusted)")
+    assert all(row[2] == "for reference only" for row in table.rows if "(unadjusted)" in row[0])
+    assert "RMSEA (unadjusted) [90% interval]" in labels
+    assert [v[0] for v in table.values][:1] == ["Scaled chi-square (Satorra-Bentler)"]
+    plain = [row[0] for row in T.fit_table(cfa_tool.fit(THREE_FACTORS, hs_data)).rows]
+    assert plain[:3] == ["Chi-square test", "CFI", "TLI"] and not any("unadjusted" in label for label in plain)
