@@ -266,7 +266,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             raise OptionError("summary statistics allow only the normal-theory test: robust tests and standard errors "
                               "need the rows of answers (--robust cannot apply)")
         result = converged(fit_moments(spec, moments, replace(fit_options, diagnostics=False)))
-        return _described(replace(result, warnings=tuple(notes) + result.warnings), spec, None)
+        result = replace(result, warnings=tuple(notes) + result.warnings,
+                         data=replace(result.data, not_given=moments.not_given))
+        return _described(result, spec, None)
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,

@@ -18,6 +18,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.sample_design import check_design, design_columns
+from cfa_tool.data.summary_stats import NotGiven
 from cfa_tool.errors import DataError, EstimationError, OptionError, printable
 from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.pipeline.results import FitResult, clean
@@ -33,6 +34,9 @@ class RowLeftOut(Enum):
     NO_GROUP = "no value in the group column"
     UNKNOWN_GROUP = "a group the fit does not have"
 
+
+#: the row of a summary-statistics file that gives what a fit lacks (data.summary_stats.NotGiven)
+_SUMMARY_ROW = {NotGiven.MEANS: "mean", NotGiven.STANDARD_DEVIATIONS: "sd"}
 
 #: the header of the id column when the file's row names name the rows
 ROW_NAME_HEADER = "row_name"
@@ -304,6 +308,7 @@ def models_of_fit(result: FitResult) -> tuple[list, list]:
 
     if result.theta is None:
         raise OptionError("this result holds no estimates to score with (a fit to summary statistics?)")
+    refuse_unknown_scale(result.data, "the fit")
     spec = parse_model(result.model_text, source=result.model_source)
     from cfa_tool.pipeline.inputs import without_exploratory_blocks
 
@@ -323,6 +328,20 @@ def models_of_fit(result: FitResult) -> tuple[list, list]:
         means = None if mean_structure else np.asarray(group.sample_mean, dtype=float)
         out.append(scoring_model(model.matrices(result.theta, g), table.observed, table.latent, group.label, means))
     return out, [g.label for g in result.groups]
+
+
+def refuse_unknown_scale(data, what: str) -> None:
+    """An error when the fit (``data``: its DataSummary) is of summary statistics without the items' means or, for a
+    correlation matrix, their standard deviations: raw answers are scored as deviations from the fitted sample's
+    means, in the units of its covariance matrix, so such a fit would give every row a wrong score."""
+    lacking = tuple(getattr(data, "not_given", ()))
+    if not lacking:
+        return
+    words = " or ".join(g.label for g in lacking)
+    raise OptionError(f"{what} is of summary statistics ({printable(str(data.source))}) without {words}, and scores of "
+                      f"answers need the fitted sample's item means and standard deviations; add the "
+                      f"{' and '.join(repr(_SUMMARY_ROW[g]) for g in lacking)} row{'s' if len(lacking) > 1 else ''} to "
+                      f"that file and fit again, or fit the model to the rows of answers")
 
 
 def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
@@ -481,9 +500,14 @@ def read_saved_fit(path) -> SavedFit:
         d = payload["data"]
         counts = d.get("category_counts") or {}
         categories = tuple(tuple((float(c["value"]), int(c["rows"])) for c in counts.get(x, ())) for x in d["variables"])
+        means = tuple(float(v) for v in d["means"])
+        not_given = tuple(NotGiven(v) for v in d.get("not_given", ()))
+        if "not_given" not in d and not any(e.get("kind") == "intercept" for e in payload["estimates"]) \
+                and not any(means) and not counts:
+            not_given = (NotGiven.MEANS,)  # written before fits said so: every item mean 0 is no mean at all
         summary = DataSummary(str(d["source"]), int(d["rows_read"]), int(d["rows_dropped"]), int(d["n_obs"]),
-                              tuple(d["variables"]), tuple(float(v) for v in d["means"]), tuple(float(v) for v in d["sds"]),
-                              categories=categories if counts else ())
+                              tuple(d["variables"]), means, tuple(float(v) for v in d["sds"]),
+                              categories=categories if counts else (), not_given=not_given)
         problems = tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
                                  q["advice"], q["group"]) for q in payload.get("problems", ()))
         model = payload["model"]
@@ -613,6 +637,7 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     from cfa_tool.pipeline import inputs as api
 
     saved = read_saved_fit(saved_path)
+    refuse_unknown_scale(saved.data, f"the fit in '{printable(str(saved_path))}'")
     if not saved.admissible:
         raise EstimationError(f"the fit in '{printable(str(saved_path))}' is not admissible, so no factor scores are "
                               f"computed with it")

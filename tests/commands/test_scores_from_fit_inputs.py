@@ -1,0 +1,119 @@
+"""``scores --from-fit`` (and ``simulate --population-from``) with what an earlier fit does and does not know, on the
+Holzinger & Swineford (1939) data (tests/datasets).
+
+Check values and their sources:
+* regression scores Phi L' Sigma^-1 (x - m) (Thurstone 1935), computed here with numpy from the estimates the
+  earlier fit wrote to its JSON and the means of the summary-statistics file;
+* the same rows scored by ``scores`` without --from-fit (the same run's own fit) as the reference when a file with
+  missing-value codes is scored with a fit saved as JSON.
+"""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from cfa_tool.cli import main
+from tests.conftest import THREE_FACTORS
+
+ITEMS = [f"x{i}" for i in range(1, 10)]
+FACTORS = ["visual", "textual", "speed"]
+
+
+def _run(argv, capsys):
+    code = main([str(a) for a in argv])
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+@pytest.fixture()
+def model_file(tmp_path):
+    path = tmp_path / "hs.cfa"
+    path.write_text(THREE_FACTORS)
+    return path
+
+
+def _stats_file(path, frame: pd.DataFrame, kind: str, sd: bool, mean: bool) -> None:
+    """A summary-statistics file of ``frame``'s items: the covariance or correlation matrix (divisor n-1), n, and
+    the 'sd' and 'mean' rows when asked for."""
+    x = frame[ITEMS]
+    matrix = x.cov() if kind == "covariance" else x.corr()
+    lines = [",".join([kind] + ITEMS)]
+    lines += [",".join([ITEMS[i]] + [repr(float(v)) for v in matrix.iloc[i, : i + 1]]) for i in range(len(ITEMS))]
+    lines.append(f"n,{len(x)}")
+    if sd:
+        lines.append(",".join(["sd"] + [repr(float(v)) for v in x.std()]))
+    if mean:
+        lines.append(",".join(["mean"] + [repr(float(v)) for v in x.mean()]))
+    path.write_text("\n".join(lines) + "\n")
+
+
+def _regression_scores(fit: dict, x: np.ndarray, means: np.ndarray) -> np.ndarray:
+    L, phi, theta = np.zeros((9, 3)), np.zeros((3, 3)), np.zeros((9, 9))
+    for row in fit["estimates"]:
+        v, e = row["variables"], row["estimate"]
+        if row["kind"] == "loading":
+            L[ITEMS.index(v[1]), FACTORS.index(v[0])] = e
+        elif row["kind"] == "factor_variance":
+            phi[FACTORS.index(v[0]), FACTORS.index(v[0])] = e
+        elif row["kind"] == "factor_covariance":
+            i, j = FACTORS.index(v[0]), FACTORS.index(v[1])
+            phi[i, j] = phi[j, i] = e
+        elif row["kind"] == "residual_variance":
+            theta[ITEMS.index(v[0]), ITEMS.index(v[0])] = e
+    sigma = L @ phi @ L.T + theta
+    return (x - means) @ np.linalg.solve(sigma, L @ phi)
+
+
+@pytest.mark.parametrize("kind, sd, mean, lacking", [("covariance", False, False, "without the items' means"),
+                                                     ("correlation", False, True, "without their standard deviations"),
+                                                     ("correlation", False, False, "means or their standard devi")])
+def test_a_fit_of_summary_statistics_without_means_or_units_scores_no_answers(tmp_path, model_file, hs_data, capsys,
+                                                                               kind, sd, mean, lacking):
+    """Without means every answer would be scored as a deviation from 0, and without SDs as a z-score (a
+    regression score of about 3 for an average pupil): refused in one line, exit 2, nothing written."""
+    stats, saved, out = tmp_path / "hs.stats", tmp_path / "fit.json", tmp_path / "scores.csv"
+    _stats_file(stats, hs_data, kind, sd, mean)
+    assert _run(["fit", model_file, "--data", stats, "--json", saved], capsys)[0] == 0
+    rows = tmp_path / "rows.csv"
+    hs_data.to_csv(rows)
+    code, _, err = _run(["scores", model_file, "--data", rows, "--from-fit", saved, "--output", out], capsys)
+    assert code == 2 and lacking in err and "fit again" in err and len(err.strip().splitlines()) == 1
+    assert not out.exists()
+    # a result written before fits said what their file lacked: its means of 0 are no means either
+    if not mean:
+        payload = json.loads(saved.read_text())
+        del payload["data"]["not_given"]
+        older = tmp_path / "older.json"
+        older.write_text(json.dumps(payload))
+        code, _, err = _run(["scores", model_file, "--data", rows, "--from-fit", older, "--output", out], capsys)
+        assert code == 2 and "without the items' means" in err and not out.exists()
+
+
+def test_the_python_entry_point_refuses_the_same(hs_data):
+    import cfa_tool
+    from cfa_tool.errors import OptionError
+
+    x = hs_data[ITEMS]
+    fitted = cfa_tool.fit(THREE_FACTORS, covariance=x.cov(), n_obs=len(x))
+    with pytest.raises(OptionError, match="without the items' means"):
+        fitted.scores(hs_data)
+
+
+@pytest.mark.parametrize("kind, sd", [("covariance", False), ("correlation", True)])
+def test_a_fit_of_summary_statistics_with_means_and_units_scores_answers(tmp_path, model_file, hs_data, capsys, kind, sd):
+    stats, saved, out = tmp_path / "hs.stats", tmp_path / "fit.json", tmp_path / "scores.csv"
+    _stats_file(stats, hs_data, kind, sd, mean=True)
+    assert _run(["fit", model_file, "--data", stats, "--json", saved], capsys)[0] == 0
+    rows = tmp_path / "rows.csv"
+    hs_data.to_csv(rows)
+    code, _, err = _run(["scores", model_file, "--data", rows, "--from-fit", saved, "--output", out], capsys)
+    assert code == 0, err
+    written = pd.read_csv(out)[[f"{f}_regression" for f in FACTORS]].to_numpy()
+    x = hs_data[ITEMS].to_numpy(float)
+    expected = _regression_scores(json.loads(saved.read_text()), x, x.mean(axis=0))
+    np.testing.assert_allclose(written, expected, atol=1e-8)
+    assert abs(written.mean()) < 1e-8  # the fitted sample itself: scores average to the factor means, 0
