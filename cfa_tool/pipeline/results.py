@@ -139,6 +139,8 @@ class DataSummary:
     rows_in_file: int | None = None
     # summary statistics: what the file did not give (data.summary_stats.NotGiven), so the fit does not know it
     not_given: tuple = ()
+    # values read as no answer (--missing-codes), which scoring other data with this fit reads so too
+    missing_codes: tuple[float, ...] = ()
 
     @property
     def pair_range(self) -> tuple[int, int] | None:
@@ -169,6 +171,8 @@ class DataSummary:
             out.update(row_filters=list(self.row_filters), rows_in_file=self.rows_in_file)
         if self.not_given:
             out["not_given"] = [g.value for g in self.not_given]
+        if self.missing_codes:
+            out["missing_codes"] = list(self.missing_codes)
         return clean(out)
 
 

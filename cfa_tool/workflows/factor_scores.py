@@ -364,23 +364,26 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                       keep) -> ScoreResult:
     """Rows of ``data`` scored with the given models (one per group of the earlier fit ``result``)."""
     from cfa_tool.pipeline import inputs as api
-    from cfa_tool.data.filters import apply_filters, parse_filter
-    from cfa_tool.data.matching import check_columns
     from cfa_tool.data.row_ids import duplicate_note, row_ids
 
-    loaded = api.load_data(data, sheet, missing_codes, (id_column,) if isinstance(id_column, str) else ())
-    read_frame, source = loaded.frame.set_axis([str(c) for c in loaded.frame.columns], axis=1), loaded.source
+    given = api.missing_codes_option(missing_codes)
+    carried = tuple(c for c in result.data.missing_codes if c not in given)  # the earlier fit's, read so here too
+    spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + carried, keep,
+                                                     (id_column,) if isinstance(id_column, str) else ())
+    frame, source = loaded.frame, loaded.source
+    read_frame = loaded.read_frame if loaded.read_frame is not None else frame
     if not read_frame.index.is_unique:
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index)")
-    check_columns(spec, list(read_frame.columns), source)
     group = result.group_column
     if group is not None and group not in read_frame.columns:
         raise OptionError(f"the fit has groups by '{printable(group)}', which is not a column of {source}")
     ids = row_ids(read_frame, source, id_column, result.observed, group, loaded.row_names)
-    frame, notes = read_frame, []
-    keep = api.keep_option(keep)
-    if keep:
-        frame, notes = apply_filters(read_frame, [parse_filter(k) for k in keep], source)
+    if carried:
+        one = len(carried) == 1
+        notes.insert(0, f"{'The value' if one else 'The values'} {', '.join(f'{c:g}' for c in carried)} in {source} "
+                        f"{'was' if one else 'were'} read as no answer, as the earlier fit read {'it' if one else 'them'} "
+                        f"(its missing-value codes)")
+    result = api.with_odd_values(result, api.analysed_odd_values(loaded, spec, group))
     from cfa_tool.scoring.model import OrdinalScoringModel
 
     ordinal = isinstance(models[0], OrdinalScoringModel)
@@ -507,7 +510,8 @@ def read_saved_fit(path) -> SavedFit:
             not_given = (NotGiven.MEANS,)  # written before fits said so: every item mean 0 is no mean at all
         summary = DataSummary(str(d["source"]), int(d["rows_read"]), int(d["rows_dropped"]), int(d["n_obs"]),
                               tuple(d["variables"]), means, tuple(float(v) for v in d["sds"]),
-                              categories=categories if counts else (), not_given=not_given)
+                              categories=categories if counts else (), not_given=not_given,
+                              missing_codes=tuple(float(v) for v in d.get("missing_codes", ())))
         problems = tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
                                  q["advice"], q["group"]) for q in payload.get("problems", ()))
         model = payload["model"]

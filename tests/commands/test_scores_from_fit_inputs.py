@@ -117,3 +117,41 @@ def test_a_fit_of_summary_statistics_with_means_and_units_scores_answers(tmp_pat
     expected = _regression_scores(json.loads(saved.read_text()), x, x.mean(axis=0))
     np.testing.assert_allclose(written, expected, atol=1e-8)
     assert abs(written.mean()) < 1e-8  # the fitted sample itself: scores average to the factor means, 0
+
+
+def test_missing_value_codes_of_the_earlier_fit_are_read_so_and_codes_in_the_scored_file_are_named(
+        tmp_path, model_file, hs_data, capsys):
+    """-99 in x1 of three rows: the fit was told it means no answer, so scores --from-fit reads it so too (and
+    says so); the reference is the same run's own scores with --missing-codes -99 (fit and scores of one file).
+    A fit that was not told gets the same caution first as every reader of data gives."""
+    coded = hs_data.copy()
+    coded.loc[coded.index[[3, 10, 20]], "x1"] = -99
+    rows, saved = tmp_path / "coded.csv", tmp_path / "fit99.json"
+    coded.to_csv(rows)
+    assert _run(["fit", model_file, "--data", rows, "--missing-codes", "-99", "--json", saved], capsys)[0] == 0
+    assert json.loads(saved.read_text())["data"]["missing_codes"] == [-99.0]
+    out, reference, js = tmp_path / "from_fit.csv", tmp_path / "same_run.csv", tmp_path / "from_fit.json"
+    code, text, err = _run(["scores", model_file, "--data", rows, "--from-fit", saved, "--output", out, "--json", js],
+                           capsys)
+    assert code == 0, err
+    assert "-99 in" in " ".join(text.split()) and "read as no answer, as the earlier fit" in " ".join(text.split())
+    assert _run(["scores", model_file, "--data", rows, "--missing-codes", "-99", "--output", reference], capsys)[0] == 0
+    np.testing.assert_allclose(pd.read_csv(out).to_numpy(), pd.read_csv(reference).to_numpy(), atol=1e-8)
+    assert json.loads(js.read_text())["problems"] == []
+    # an earlier fit of the clean rows, told nothing: the -99 answers are named first, as fit and scores name them
+    clean_fit = tmp_path / "clean.json"
+    hs_data.to_csv(tmp_path / "clean.csv")
+    assert _run(["fit", model_file, "--data", tmp_path / "clean.csv", "--json", clean_fit], capsys)[0] == 0
+    out2, js2 = tmp_path / "flagged.csv", tmp_path / "flagged.json"
+    code, text, _ = _run(["scores", model_file, "--data", rows, "--from-fit", clean_fit, "--output", out2,
+                          "--json", js2], capsys)
+    assert code == 0 and text.index("-99") < text.index("Factor scores:")
+    kinds = [p["kind"] for p in json.loads(js2.read_text())["problems"]]
+    own = [p["kind"] for p in json.loads(js.read_text())["problems"]]
+    assert len(kinds) == len(own) + 1
+    # the Python entry point carries the codes as well
+    import cfa_tool
+
+    fitted = cfa_tool.fit(THREE_FACTORS, coded, missing_codes=[-99])
+    np.testing.assert_allclose(fitted.scores(coded).table.to_numpy(float), pd.read_csv(reference).iloc[:, 1:].to_numpy(),
+                               atol=1e-8)
