@@ -134,6 +134,16 @@ def console():
     return SafeConsole(highlight=False, markup=False, emoji=False)
 
 
+def notice_on_standard_error(notice) -> None:
+    """The problems box (reporting.tables.ProblemNotice; None: nothing to say) on standard error, for a run whose
+    standard output carries an output instead of the report: the problems still come first."""
+    if notice is None:
+        return
+    from cfa_tool.reporting.terminal import SafeConsole, problem_panel
+
+    SafeConsole(highlight=False, markup=False, emoji=False, stderr=True).print(problem_panel(notice))
+
+
 def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
                 first: list[tuple[str, object, str]] = ()) -> int:
     """Turn ``result`` into its report once, make every output asked for (``first``: files the command makes
@@ -151,6 +161,8 @@ def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
     tables = table_files(args, report, inputs)
     if not args._stdout_taken:
         render_report(report, console())
+    else:
+        notice_on_standard_error(report.notice)
     write_reports(args, files)
     write_tables(args, tables, inputs)
     return 0
@@ -231,6 +243,10 @@ def emit(args: argparse.Namespace, result, render=None) -> int:
         check_table_folder("--tables", args.tables, tables, inputs_of(args))
     if not args._stdout_taken:  # otherwise standard output carries that output alone
         render(result, console())
+    else:
+        from cfa_tool.reporting.tables import problem_notice
+
+        notice_on_standard_error(problem_notice(result))
     for option, content, message in files:
         write_file(args._targets[option], content)
         if not args._targets[option].is_stdout:

@@ -7,7 +7,7 @@ import argparse
 
 from cfa_tool.commands import options as O
 from cfa_tool.commands.common import add_report_options, check_files, console, docx_file, report_files, require_suffix, \
-    say, table_files, write_reports, write_tables
+    notice_on_standard_error, say, table_files, write_reports, write_tables
 
 
 def add_parser(sub) -> None:
@@ -65,6 +65,8 @@ def run(args: argparse.Namespace) -> int:
     tables = table_files(args, report, [args.data])
     if not args._stdout_taken:
         render_explore(result, console())
+    else:
+        notice_on_standard_error(report.notice)
     write_reports(args, files)
     write_tables(args, tables, [args.data])
     if args.draft and not result.exploration.draft.usable:

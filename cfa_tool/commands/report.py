@@ -5,8 +5,8 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.commands.common import add_report_options, check_files, console, document_files, table_files, \
-    write_reports, write_tables
+from cfa_tool.commands.common import add_report_options, check_files, console, document_files, \
+    notice_on_standard_error, table_files, write_reports, write_tables
 
 
 def add_parser(sub) -> None:
@@ -63,6 +63,8 @@ def run(args: argparse.Namespace) -> int:
     tables = table_files(args, report, [args.result])
     if not args._stdout_taken:
         render_report(report, console())
+    else:
+        notice_on_standard_error(report.notice)
     write_reports(args, files)
     write_tables(args, tables, [args.result])
     return 0

@@ -155,3 +155,27 @@ def test_missing_value_codes_of_the_earlier_fit_are_read_so_and_codes_in_the_sco
     fitted = cfa_tool.fit(THREE_FACTORS, coded, missing_codes=[-99])
     np.testing.assert_allclose(fitted.scores(coded).table.to_numpy(float), pd.read_csv(reference).iloc[:, 1:].to_numpy(),
                                atol=1e-8)
+
+
+def test_with_an_output_on_standard_output_the_problems_still_reach_standard_error(tmp_path, model_file, hs_data,
+                                                                                    capsys):
+    """scores --output - and fit --json - leave standard output to the scores or the JSON alone; a missing-value
+    code read as an answer is still named, on standard error (and a clean run says nothing there)."""
+    import io
+
+    coded = hs_data.copy()
+    coded.loc[coded.index[[3, 10, 20]], "x1"] = -99
+    rows = tmp_path / "coded.csv"
+    coded.to_csv(rows)
+    code, out, err = _run(["scores", model_file, "--data", rows, "--output", "-"], capsys)
+    assert code == 0 and "-99" in err and "Check before interpreting" in err
+    assert len(pd.read_csv(io.StringIO(out))) == len(coded)  # standard output: the scores alone
+    code, out, err = _run(["fit", model_file, "--data", rows, "--json", "-"], capsys)
+    assert code == 0 and "-99" in err and json.loads(out)["problems"]
+    saved = tmp_path / "fit.json"
+    saved.write_text(out)
+    code, out, err = _run(["report", saved, "--markdown", "-"], capsys)
+    assert code == 0 and "-99" in err and "-99" in out
+    hs_data.to_csv(tmp_path / "clean.csv")
+    code, out, err = _run(["scores", model_file, "--data", tmp_path / "clean.csv", "--output", "-"], capsys)
+    assert code == 0 and err == ""
