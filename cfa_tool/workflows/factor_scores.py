@@ -81,6 +81,9 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
         columns[id_name] = ids.tolist()
     for meth in chosen:
         for f, name in enumerate(factors):
+            if id_name in (column_name(name, meth), column_name(name, meth, "se") if with_errors else None):
+                raise OptionError(f"the id column '{printable(id_name)}' has the name of a column of scores the output "
+                                  f"holds; rename that column in the data, or name the rows by another column")
             columns[column_name(name, meth)] = values[meth][:, f]
             if with_errors:
                 columns[column_name(name, meth, "se")] = errors[meth][:, f]

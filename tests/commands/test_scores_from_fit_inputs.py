@@ -179,3 +179,15 @@ def test_with_an_output_on_standard_output_the_problems_still_reach_standard_err
     hs_data.to_csv(tmp_path / "clean.csv")
     code, out, err = _run(["scores", model_file, "--data", tmp_path / "clean.csv", "--output", "-"], capsys)
     assert code == 0 and err == ""
+
+
+@pytest.mark.parametrize("name, extra", [("visual_regression", []), ("speed_regression_se", ["--standard-errors"])])
+def test_an_id_column_named_like_a_score_column_is_a_one_line_error(tmp_path, model_file, hs_data, capsys, name, extra):
+    renamed = hs_data.rename(columns={"id": name})
+    rows, out, saved = tmp_path / "ids.csv", tmp_path / "scores.csv", tmp_path / "fit.json"
+    renamed.to_csv(rows)
+    assert _run(["fit", model_file, "--data", rows, "--json", saved], capsys)[0] == 0
+    for more in ([], ["--from-fit", saved]):
+        code, _, err = _run(["scores", model_file, "--data", rows, "--output", out, "--id", name, *extra, *more], capsys)
+        assert code == 2 and f"'{name}' has the name of a column of scores" in err and len(err.splitlines()) == 1
+        assert not out.exists()
