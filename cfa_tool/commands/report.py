@@ -17,28 +17,12 @@ def add_parser(sub) -> None:
     p.add_argument("--dpi", type=int, default=300, help="resolution of pictures in the Word document (default 300)")
 
 
-def read_result(path: str) -> dict:
+def read_result(path: str) -> object:
     """The JSON of a saved result; a one-line error naming the file when it cannot be read as JSON."""
-    import json
-
     from cfa_tool.errors import OptionError
-    from cfa_tool.output_files import shown
+    from cfa_tool.input_files import input_json
 
-    try:
-        with open(path, "rb") as handle:
-            raw = handle.read()
-    except FileNotFoundError:
-        raise OptionError(f"{shown(path)}: no such file") from None
-    except IsADirectoryError:
-        raise OptionError(f"{shown(path)}: is a folder, not a result file") from None
-    except OSError as exc:
-        raise OptionError(f"{shown(path)}: cannot be read ({exc.strerror or exc})") from None
-    try:
-        return json.loads(raw.decode("utf-8-sig"))
-    except UnicodeDecodeError:
-        raise OptionError(f"{shown(path)}: not a JSON result (not UTF-8 text)") from None
-    except json.JSONDecodeError as exc:
-        raise OptionError(f"{shown(path)}: not a JSON result (line {exc.lineno}, column {exc.colno}: {exc.msg})") from None
+    return input_json(path, "result file", OptionError)
 
 
 def run(args: argparse.Namespace) -> int:

@@ -81,7 +81,8 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
         columns[id_name] = ids.tolist()
     for meth in chosen:
         for f, name in enumerate(factors):
-            if id_name in (column_name(name, meth), column_name(name, meth, "se") if with_errors else None):
+            written = (column_name(name, meth),) + ((column_name(name, meth, "se"),) if with_errors else ())
+            if id_name in written:
                 raise OptionError(f"the id column '{printable(id_name)}' has the name of a column of scores the output "
                                   f"holds; rename that column in the data, or name the rows by another column")
             columns[column_name(name, meth)] = values[meth][:, f]
@@ -492,15 +493,12 @@ class SavedFit:
 
 def read_saved_fit(path) -> SavedFit:
     """A fit's JSON result (``fit --json``), checked to be one."""
-    import json
-
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.input_files import input_bytes
+    from cfa_tool.input_files import input_json
     from cfa_tool.pipeline.results import DataSummary
 
-    raw = input_bytes(Path(path), "fit result", OptionError, 200_000_000)
+    payload = input_json(Path(path), "fit result", OptionError)
     try:
-        payload = json.loads(raw.decode("utf-8"))
         if payload.get("tool") != "cfa-tool" or "estimates" not in payload:
             raise ValueError
         d = payload["data"]
@@ -518,7 +516,7 @@ def read_saved_fit(path) -> SavedFit:
         problems = tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
                                  q["advice"], q["group"]) for q in payload.get("problems", ()))
         model = payload["model"]
-    except (ValueError, KeyError, TypeError, AttributeError, UnicodeDecodeError):
+    except (ValueError, KeyError, TypeError, AttributeError):
         raise OptionError(f"'{printable(str(path))}' is not the JSON result of a fit by cfa-tool (fit --json)") from None
     return SavedFit(str(model.get("name")), str(model.get("source")), str(payload.get("estimator")), int(payload["n_obs"]),
                     summary, tuple(summary.variables), problems, tuple(payload.get("warnings", ())),

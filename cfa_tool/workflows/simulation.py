@@ -178,17 +178,15 @@ def standardized_entries(table: ParameterTable, model: StructuredModel, theta: n
     return standardize_entries(model.matrices(theta), codes, rows, cols, model.entry_values(theta))[0]
 
 
-MAX_RESULT_BYTES = 200_000_000
 _COVARIANCE_KINDS = ("factor_covariance", "residual_covariance")
 
 
 def fitted_estimates(fitted) -> tuple[list[dict], str, bool, bool, bool, dict]:
     """The estimate rows of an earlier fit and where they came from: ``fitted`` is a fit result, the dict of
     its JSON (``fit --json``) or the path of that JSON file; last, the whole result as that dict."""
-    import json
     from pathlib import Path
 
-    from cfa_tool.input_files import input_bytes
+    from cfa_tool.input_files import input_json
 
     if hasattr(fitted, "to_dict") and hasattr(fitted, "estimates"):
         payload = fitted.to_dict()
@@ -197,12 +195,7 @@ def fitted_estimates(fitted) -> tuple[list[dict], str, bool, bool, bool, dict]:
     source = "the result given"
     if isinstance(fitted, (str, Path)):
         source = str(fitted)
-        raw = input_bytes(fitted, "fitted result", OptionError, MAX_RESULT_BYTES)
-        try:
-            fitted = json.loads(raw.decode("utf-8-sig"))
-        except (UnicodeDecodeError, ValueError) as exc:
-            raise OptionError(f"{source}: not a result written by 'cfa-tool fit --json' (it is not JSON: "
-                              f"{str(exc).splitlines()[0][:80]})") from None
+        fitted = input_json(fitted, "fit result", OptionError)
     if not isinstance(fitted, dict) or not isinstance(fitted.get("estimates"), list):
         raise OptionError(f"{source}: not a result written by 'cfa-tool fit --json' (it has no 'estimates' list)")
     return (fitted["estimates"], source, fitted.get("admissible", True) is not False, "groups" in fitted,

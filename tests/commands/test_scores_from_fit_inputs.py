@@ -191,3 +191,37 @@ def test_an_id_column_named_like_a_score_column_is_a_one_line_error(tmp_path, mo
         code, _, err = _run(["scores", model_file, "--data", rows, "--output", out, "--id", name, *extra, *more], capsys)
         assert code == 2 and f"'{name}' has the name of a column of scores" in err and len(err.splitlines()) == 1
         assert not out.exists()
+
+
+def test_every_reader_of_a_saved_fit_reads_it_re_saved_by_an_editor_and_refuses_the_same_files_alike(
+        tmp_path, model_file, hs_data, capsys):
+    """A fit's JSON re-saved with a UTF-8 byte-order mark or as UTF-16 (as Windows editors save 'Unicode') is read
+    by report, scores --from-fit and simulate --population-from; bytes that are no text and text that is no JSON
+    get one message each, the same from all three."""
+    rows, saved = tmp_path / "hs.csv", tmp_path / "fit.json"
+    hs_data.to_csv(rows)
+    assert _run(["fit", model_file, "--data", rows, "--json", saved], capsys)[0] == 0
+    text = saved.read_text(encoding="utf-8")
+    reference = tmp_path / "reference.csv"
+    assert _run(["scores", model_file, "--data", rows, "--from-fit", saved, "--output", reference], capsys)[0] == 0
+    variants = {"bom.json": b"\xef\xbb\xbf" + text.encode("utf-8"), "u16.json": text.encode("utf-16")}
+    for name, content in variants.items():
+        path = tmp_path / name
+        path.write_bytes(content)
+        out = tmp_path / f"{name}.csv"
+        assert _run(["report", path, "--markdown", tmp_path / f"{name}.md"], capsys)[0] == 0
+        assert _run(["scores", model_file, "--data", rows, "--from-fit", path, "--output", out], capsys)[0] == 0
+        assert out.read_bytes() == reference.read_bytes()
+        assert _run(["simulate", model_file, "--n", 5, "--output", tmp_path / f"sim_{name}.csv", "--population-from",
+                     path], capsys)[0] == 0
+    for content, words in ((b"\xff\xfe\x00", "is not UTF-8 text"), (b"{nope", "is not JSON (line 1, column 2")):
+        bad = tmp_path / "bad.json"
+        bad.write_bytes(content)
+        errors = []
+        for argv in (["report", bad], ["scores", model_file, "--data", rows, "--from-fit", bad, "--output",
+                                       tmp_path / "no.csv"],
+                     ["simulate", model_file, "--n", 5, "--output", tmp_path / "no2.csv", "--population-from", bad]):
+            code, _, err = _run(argv, capsys)
+            assert code == 2 and len(err.strip().splitlines()) == 1 and words in err, err
+            errors.append(err.split("bad.json'")[1])
+        assert len(set(errors)) == 1  # the same words after the file's name

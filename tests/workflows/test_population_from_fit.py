@@ -76,7 +76,7 @@ def test_command_line(tmp_path, fitted):
     bad = tmp_path / "bad.json"
     bad.write_text("{not json")
     proc = run("simulate", str(model), "--n", "50", "--output", str(tmp_path / "sim2.csv"), "--population-from", str(bad))
-    assert proc.returncode == 2 and "not a result written by 'cfa-tool fit --json'" in proc.stderr
+    assert proc.returncode == 2 and "bad.json' is not JSON (line 1" in proc.stderr
     proc = run("simulate", str(model), "--n", "50", "--output", str(result), "--population-from", str(result))
     assert proc.returncode == 2 and json.loads(result.read_text())["estimates"]  # the input is never replaced
 
