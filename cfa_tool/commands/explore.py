@@ -44,16 +44,13 @@ def add_parser(sub) -> None:
 def run(args: argparse.Namespace) -> int:
     from cfa_tool.reporting.reports import report_of
     from cfa_tool.language.parser import MODEL_SUFFIX
-    from cfa_tool.output_files import check_new_file
     from cfa_tool.reporting.explore_report import explore_html_report, explore_markdown, render_explore
     from cfa_tool.workflows.explore import explore
 
     require_suffix("--draft", args.draft, MODEL_SUFFIX, "model files")
     outputs = [("--draft", args.draft), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown)]
-    targets = check_files(args, outputs, [args.data] + ([args.target] if args.target else []))
+    check_files(args, outputs, [args.data] + ([args.target] if args.target else []), never_replaced=("--draft",))
     rotation = args.rotation or ("target" if args.target else "quartimin")
-    if args.draft:
-        targets["--draft"] = check_new_file(targets["--draft"])
     result = explore(args.data, items=args.items, factors=args.factors, rotation=rotation,
                      extraction=args.extraction, ordinal=O.ordinal_arg(args.ordinal), split=args.split,
                      sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,

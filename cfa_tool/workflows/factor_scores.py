@@ -238,13 +238,12 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
             raise EstimationError(f"the fitted solution is not admissible ({why}), so no factor scores are written; "
                                   f"run 'fit' to see its problems")
     result = api.with_odd_values(result, loaded)
+    fitted_rows = _fitted_rows(frame, design, spec, group, source)
     if ordinal_items:
         chosen = (ScoreMethod.EXPECTED_A_POSTERIORI,)
-        models, labels = _ordinal_models(spec, _fitted_rows(frame, design, spec, group, source), source, ordinal_items,
-                                         group, reference_group, result, design)
+        models, labels = _ordinal_models(spec, fitted_rows, source, ordinal_items, group, reference_group, result, design)
     else:
-        models, labels = _linear_models(spec, _fitted_rows(frame, design, spec, group, source), source, group,
-                                        reference_group, fit_options, result, design)
+        models, labels = _linear_models(spec, fitted_rows, source, group, reference_group, fit_options, result, design)
     factors = models[0].base.factors if ordinal_items else models[0].factors
     items = models[0].base.items if ordinal_items else models[0].items
     rows = _numeric(frame, items, source)
@@ -297,6 +296,11 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
                         f"the header); give --id COLUMN to name the rows by another column.")
     own = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal_items)
+    unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
+    if unweighted:
+        which = "The row of weight 0 is" if unweighted == 1 else f"The {unweighted} rows of weight 0 are"
+        own.insert(0, f"{which} scored all the same: a row's score follows from its own answers and the fitted "
+                      f"parameters, whatever its weight")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
                        bool(standard_errors or ordinal_items), tuple(extra + own))

@@ -225,3 +225,40 @@ def test_every_reader_of_a_saved_fit_reads_it_re_saved_by_an_editor_and_refuses_
             assert code == 2 and len(err.strip().splitlines()) == 1 and words in err, err
             errors.append(err.split("bad.json'")[1])
         assert len(set(errors)) == 1  # the same words after the file's name
+
+
+def test_words_that_said_a_little_more_or_less_than_happened(tmp_path, model_file, hs_data, capsys):
+    """a) a result without its report is described by what it lacks, not blamed on the current version;
+    b) a file of scores is never replaced by simulated rows, and the refusal says that rule, not that cfa-tool did
+    not write it; c) rows of weight 0 are left out of the fit, not of the scores, and the report says both;
+    d) scores from an earlier fit with gaps repeat its note without advice of an option scores --from-fit refuses."""
+    from cfa_tool import __version__
+
+    rows, saved = tmp_path / "hs.csv", tmp_path / "fit.json"
+    weighted = hs_data.assign(w=1.0)
+    weighted.loc[weighted.index[5], "w"] = 0.0
+    weighted.loc[weighted.index[7], "x2"] = np.nan  # a gap: full-information ML and its note
+    weighted.to_csv(rows)
+    assert _run(["fit", model_file, "--data", rows, "--json", saved], capsys)[0] == 0
+    payload = json.loads(saved.read_text())
+    del payload["report"]
+    bare = tmp_path / "bare.json"
+    bare.write_text(json.dumps(payload))
+    code, _, err = _run(["report", bare], capsys)
+    assert code == 2 and "holds no 'report' part" in err and __version__ not in err
+    scores = tmp_path / "scores.csv"
+    code, text, err = _run(["scores", model_file, "--data", rows, "--output", scores, "--weights", "w"], capsys)
+    assert code == 0, err
+    flat = " ".join(text.split())
+    assert "weight 0 in 'w' and were left out of the estimation" in flat and "The row of weight 0 is scored" in flat
+    assert not pd.read_csv(scores).iloc[5, 1:].isna().any()  # that row has its scores
+    before = scores.read_bytes()
+    code, _, err = _run(["simulate", model_file, "--n", 5, "--output", scores], capsys)
+    assert code == 2 and "exists, and this output never replaces a file" in err and "not written by" not in err
+    assert scores.read_bytes() == before
+    code, text, err = _run(["scores", model_file, "--data", rows, "--from-fit", saved, "--output",
+                            tmp_path / "again.csv"], capsys)
+    assert code == 0, err
+    flat = " ".join(text.split())
+    assert "About the fit (not the scored data): 1 of 301 rows miss some answers" in flat
+    assert "--incomplete-rows" not in flat

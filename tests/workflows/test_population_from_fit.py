@@ -92,7 +92,7 @@ def test_rows_of_data_never_replace_an_existing_file(tmp_path, hs_data):
     for args in (["simulate", str(model), "--n", "20", "--output", str(other)],
                  ["scores", str(model), "--data", str(data), "--output", str(other)]):
         proc = run(*args)
-        assert proc.returncode == 2 and "was not written by cfa-tool" in proc.stderr, args
+        assert proc.returncode == 2 and "exists, and this output never replaces a file" in proc.stderr, args
         assert other.read_text() == "a,b\n1,2\n"
     assert data.read_bytes() == before
 
