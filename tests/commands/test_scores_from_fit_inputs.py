@@ -16,24 +16,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from cfa_tool.cli import main
+from tests.commands.test_scores_command import FACTORS, ITEMS, _estimates, _run, model_file  # noqa: F401 (a fixture)
 from tests.conftest import THREE_FACTORS
-
-ITEMS = [f"x{i}" for i in range(1, 10)]
-FACTORS = ["visual", "textual", "speed"]
-
-
-def _run(argv, capsys):
-    code = main([str(a) for a in argv])
-    out = capsys.readouterr()
-    return code, out.out, out.err
-
-
-@pytest.fixture()
-def model_file(tmp_path):
-    path = tmp_path / "hs.cfa"
-    path.write_text(THREE_FACTORS)
-    return path
 
 
 def _stats_file(path, frame: pd.DataFrame, kind: str, sd: bool, mean: bool) -> None:
@@ -52,18 +36,7 @@ def _stats_file(path, frame: pd.DataFrame, kind: str, sd: bool, mean: bool) -> N
 
 
 def _regression_scores(fit: dict, x: np.ndarray, means: np.ndarray) -> np.ndarray:
-    L, phi, theta = np.zeros((9, 3)), np.zeros((3, 3)), np.zeros((9, 9))
-    for row in fit["estimates"]:
-        v, e = row["variables"], row["estimate"]
-        if row["kind"] == "loading":
-            L[ITEMS.index(v[1]), FACTORS.index(v[0])] = e
-        elif row["kind"] == "factor_variance":
-            phi[FACTORS.index(v[0]), FACTORS.index(v[0])] = e
-        elif row["kind"] == "factor_covariance":
-            i, j = FACTORS.index(v[0]), FACTORS.index(v[1])
-            phi[i, j] = phi[j, i] = e
-        elif row["kind"] == "residual_variance":
-            theta[ITEMS.index(v[0]), ITEMS.index(v[0])] = e
+    L, phi, theta, _ = _estimates({"fit": fit})
     sigma = L @ phi @ L.T + theta
     return (x - means) @ np.linalg.solve(sigma, L @ phi)
 
