@@ -100,6 +100,27 @@ def input_text(path: str | Path, what: str, error: type[UserInputError], limit: 
     return text
 
 
+#: the largest saved result (a command's --json file) any command reads
+MAX_RESULT_BYTES = 200_000_000
+
+
+def input_json(path: str | Path, what: str, error: type[UserInputError], limit: int = MAX_RESULT_BYTES) -> object:
+    """The content of a saved JSON result (a command's --json file), read as :func:`input_text` reads text (UTF-8
+    with or without a byte-order mark, or UTF-16, as editors re-save it): the one reader of saved results, so
+    that report, scores --from-fit and --population-from accept and refuse the same files in the same words."""
+    import json
+
+    text = input_text(path, what, error, limit)
+    try:
+        return json.loads(text)
+    except json.JSONDecodeError as exc:
+        raise error(f"{what} '{_short(Path(path))}' is not JSON (line {exc.lineno}, column {exc.colno}: "
+                    f"{exc.msg})") from None
+    except (ValueError, RecursionError):  # numbers too long to read, nesting too deep
+        raise error(f"{what} '{_short(Path(path))}' is not JSON that can be read (numbers too long or nesting too "
+                    f"deep)") from None
+
+
 def utf16_text(raw: bytes) -> str | None:
     """Text of a UTF-16 file (as some Windows programs save 'Unicode text'), recognised by its
     byte-order mark, or by NUL bytes in every other position of ASCII text; None otherwise."""

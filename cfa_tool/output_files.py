@@ -184,10 +184,11 @@ def _open_pipe(option: str, given: str) -> int:
 
 
 def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path | None],
-                  folders: list[tuple[str, str | None]] = ()) -> dict[str, Target]:
+                  folders: list[tuple[str, str | None]] = (), new_only: tuple[str, ...] = ()) -> dict[str, Target]:
     """Check every output of a run at once, before any work: each path on its own, none the
     same file as an input, no two the same file.  ``outputs`` are (option, path) pairs
-    (None: not asked for); ``folders`` are (option, folder) pairs for table folders."""
+    (None: not asked for); ``folders`` are (option, folder) pairs for table folders; ``new_only``: options
+    whose files never replace an existing file (:func:`check_new_file`)."""
     targets: dict[str, Target] = {}
     input_ids = {}
     for source in inputs:
@@ -209,7 +210,10 @@ def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path
             if ident is not None and ident in input_ids and not target.direct:
                 raise OptionError(f"{option}: refusing to write to '{shown(given)}': it is the input file "
                                   f"'{shown(input_ids[ident])}'")
-            check_replaceable(target)
+            if option in new_only:
+                target = targets[option] = check_new_file(target)
+            else:
+                check_replaceable(target)
             key = ident if ident is not None else os.path.realpath(given)
         if key in seen and not (key == STDOUT or target.direct):
             raise OptionError(f"{option} and {seen[key]} name the same file ('{shown(given)}'); give each output its own file")

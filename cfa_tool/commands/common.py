@@ -10,14 +10,18 @@ from pathlib import Path
 from cfa_tool.errors import OptionError, printable
 
 
-def check_files(args: argparse.Namespace, outputs: list[tuple[str, str | None]], inputs: list[str | None]) -> dict:
+def check_files(args: argparse.Namespace, outputs: list[tuple[str, str | None]], inputs: list[str | None],
+                never_replaced: tuple[str, ...] = ()) -> dict:
     """Every output checked before any work (cfa_tool.output_files), the report options' files and table folder
-    among them; the targets are kept on ``args``."""
+    among them; the targets are kept on ``args``.  ``never_replaced``: options whose files hold rows of data (scores,
+    simulated rows, a draft model), which never replace an existing file, even one this tool wrote (perhaps edited
+    since)."""
     from cfa_tool.output_files import check_outputs
 
     asked = {option for option, _ in outputs}
     outputs = list(outputs) + [(o, getattr(args, a, None)) for o, a in REPORT_FILES if o not in asked]
-    targets = check_outputs(outputs, [i for i in inputs if i], [("--tables", getattr(args, "tables", None))])
+    targets = check_outputs(outputs, [i for i in inputs if i], [("--tables", getattr(args, "tables", None))],
+                            new_only=never_replaced)
     args._targets = targets
     args._stdout_taken = any(t.is_stdout for t in targets.values())
     return targets
@@ -134,6 +138,16 @@ def console():
     return SafeConsole(highlight=False, markup=False, emoji=False)
 
 
+def notice_on_standard_error(notice) -> None:
+    """The problems box (reporting.tables.ProblemNotice; None: nothing to say) on standard error, for a run whose
+    standard output carries an output instead of the report: the problems still come first."""
+    if notice is None:
+        return
+    from cfa_tool.reporting.terminal import SafeConsole, problem_panel
+
+    SafeConsole(highlight=False, markup=False, emoji=False, stderr=True).print(problem_panel(notice))
+
+
 def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
                 first: list[tuple[str, object, str]] = ()) -> int:
     """Turn ``result`` into its report once, make every output asked for (``first``: files the command makes
@@ -151,6 +165,8 @@ def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
     tables = table_files(args, report, inputs)
     if not args._stdout_taken:
         render_report(report, console())
+    else:
+        notice_on_standard_error(report.notice)
     write_reports(args, files)
     write_tables(args, tables, inputs)
     return 0
@@ -200,11 +216,7 @@ def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
         require_converter(picture_format("--diagram", diagram))
     output = getattr(args, "output", None)
     require_suffix("--output", output, ".csv", "the simulated rows")
-    targets = check_files(args, [], inputs)
-    if output and "--output" in targets:  # rows of data: an existing file (perhaps someone's data) is never replaced
-        from cfa_tool.output_files import check_new_file
-
-        targets["--output"] = check_new_file(targets["--output"])
+    targets = check_files(args, [], inputs, never_replaced=("--output",))
     if hasattr(args, "dpi"):
         pictures = bool(getattr(args, "docx", None)) or (bool(diagram) and picture_format("--diagram", diagram)
                                                            is PictureFormat.PNG)

@@ -7,7 +7,7 @@ import argparse
 
 from cfa_tool.commands import options as O
 from cfa_tool.commands.common import add_report_options, check_files, console, docx_file, report_files, require_suffix, \
-    say, table_files, write_reports, write_tables
+    notice_on_standard_error, say, table_files, write_reports, write_tables
 
 
 def add_parser(sub) -> None:
@@ -48,16 +48,13 @@ def add_parser(sub) -> None:
 def run(args: argparse.Namespace) -> int:
     from cfa_tool.reporting.reports import report_of
     from cfa_tool.language.parser import MODEL_SUFFIX
-    from cfa_tool.output_files import check_new_file
     from cfa_tool.reporting.explore_report import explore_html_report, explore_markdown, render_explore
     from cfa_tool.workflows.explore import explore
 
     require_suffix("--draft", args.draft, MODEL_SUFFIX, "model files")
     outputs = [("--draft", args.draft), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown)]
-    targets = check_files(args, outputs, [args.data] + ([args.target] if args.target else []))
+    check_files(args, outputs, [args.data] + ([args.target] if args.target else []), never_replaced=("--draft",))
     rotation = args.rotation or ("target" if args.target else "quartimin")
-    if args.draft:
-        targets["--draft"] = check_new_file(targets["--draft"])
     result = explore(args.data, items=args.items, factors=args.factors, rotation=rotation,
                      extraction=args.extraction, ordinal=O.ordinal_arg(args.ordinal), split=args.split,
                      sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
@@ -69,6 +66,8 @@ def run(args: argparse.Namespace) -> int:
     tables = table_files(args, report, [args.data])
     if not args._stdout_taken:
         render_explore(result, console())
+    else:
+        notice_on_standard_error(report.notice)
     write_reports(args, files)
     write_tables(args, tables, [args.data])
     if args.draft and not result.exploration.draft.usable:

@@ -5,8 +5,8 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.commands.common import add_report_options, check_files, console, document_files, picture_resolution, \
-    table_files, write_reports, write_tables
+from cfa_tool.commands.common import add_report_options, check_files, console, document_files, \
+    notice_on_standard_error, picture_resolution, table_files, write_reports, write_tables
 
 
 def add_parser(sub) -> None:
@@ -18,28 +18,12 @@ def add_parser(sub) -> None:
                                                          "only with --docx, for a result with pictures")
 
 
-def read_result(path: str) -> dict:
+def read_result(path: str) -> object:
     """The JSON of a saved result; a one-line error naming the file when it cannot be read as JSON."""
-    import json
-
     from cfa_tool.errors import OptionError
-    from cfa_tool.output_files import shown
+    from cfa_tool.input_files import input_json
 
-    try:
-        with open(path, "rb") as handle:
-            raw = handle.read()
-    except FileNotFoundError:
-        raise OptionError(f"{shown(path)}: no such file") from None
-    except IsADirectoryError:
-        raise OptionError(f"{shown(path)}: is a folder, not a result file") from None
-    except OSError as exc:
-        raise OptionError(f"{shown(path)}: cannot be read ({exc.strerror or exc})") from None
-    try:
-        return json.loads(raw.decode("utf-8-sig"))
-    except UnicodeDecodeError:
-        raise OptionError(f"{shown(path)}: not a JSON result (not UTF-8 text)") from None
-    except json.JSONDecodeError as exc:
-        raise OptionError(f"{shown(path)}: not a JSON result (line {exc.lineno}, column {exc.colno}: {exc.msg})") from None
+    return input_json(path, "result file", OptionError)
 
 
 def run(args: argparse.Namespace) -> int:
@@ -64,6 +48,8 @@ def run(args: argparse.Namespace) -> int:
     tables = table_files(args, report, [args.result])
     if not (files or tables or args._stdout_taken):  # its work is the files: the terminal view only when none is asked for
         render_report(report, console())
+    else:
+        notice_on_standard_error(report.notice)
     write_reports(args, files)
     write_tables(args, tables, [args.result])
     return 0

@@ -62,11 +62,7 @@ def run(args: argparse.Namespace) -> int:
 
     require_suffix("--output", args.output, ".csv", "the scores")
     outputs = [("--output", args.output), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown)]
-    check_files(args, outputs, [args.model, args.data, args.from_fit])
-    if "--output" in args._targets:  # rows of data: an existing file (perhaps someone's data) is never replaced
-        from cfa_tool.output_files import check_new_file
-
-        args._targets["--output"] = check_new_file(args._targets["--output"])
+    check_files(args, outputs, [args.model, args.data, args.from_fit], never_replaced=("--output",))
     if args.from_fit:
         given = getattr(args, "_given_options", set())
         for dest, option in FITTING_OPTIONS:

@@ -31,6 +31,8 @@ class SampleMoments:
     rows: np.ndarray | None = field(default=None, repr=False, compare=False)  # the complete rows analysed
     row_numbers: np.ndarray | None = field(default=None, repr=False, compare=False)  # their data-row numbers (1-based)
     design: object | None = field(default=None, repr=False, compare=False)  # data.sample_design.RowDesign of the rows
+    #: what summary statistics left out (data.summary_stats.NotGiven): the fit then knows no item means or no units
+    not_given: tuple = field(default=(), compare=False)
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:

@@ -189,7 +189,8 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
         if zero.any():
             before = frame
             frame = frame.loc[~zero]
-            notes.append(f"{int(zero.sum())} rows have weight 0 in '{columns.weights}' and were left out")
+            notes.append(f"{int(zero.sum())} rows have weight 0 in '{columns.weights}' and were left out of the "
+                         f"estimation")
             rows = rows[~zero]
             if group is not None and group in frame.columns:
                 gone = sorted(set(_labels(before[group]).dropna()) - set(_labels(frame[group]).dropna()))

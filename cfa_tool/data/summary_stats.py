@@ -24,6 +24,7 @@ from __future__ import annotations
 import os
 import re
 import stat
+from enum import Enum
 from pathlib import Path
 
 import numpy as np
@@ -34,6 +35,21 @@ from cfa_tool.errors import DataError, printable
 from cfa_tool.input_files import input_text, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.numbers import number, whole_number
 from cfa_tool.options import MAX_OBSERVATIONS
+
+
+
+class NotGiven(Enum):
+    """What a summary-statistics file may leave out, so that a fit of it knows nothing of it: without means the
+    item means are taken as 0, and a correlation matrix without standard deviations is fitted in standard-deviation
+    units.  Raw answers cannot be scored with such a fit (the scores need the fitted sample's means and units)."""
+
+    MEANS = "means"
+    STANDARD_DEVIATIONS = "standard_deviations"
+
+    @property
+    def label(self) -> str:
+        return {NotGiven.MEANS: "the items' means", NotGiven.STANDARD_DEVIATIONS: "their standard deviations"}[self]
+
 
 MAX_SUMMARY_BYTES = 50_000_000
 KINDS = ("covariance", "correlation")
@@ -252,4 +268,6 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
     _check_moments(matrix, mean, tuple(names), source)
     if np.linalg.eigvalsh(matrix)[0] <= 0:
         raise DataError(f"{source}: the matrix is not positive definite")
-    return SampleMoments(tuple(names), matrix, mean, int(n_obs), int(n_obs), 0, source), notes
+    not_given = ((NotGiven.MEANS,) if means is None else ()) + (
+        (NotGiven.STANDARD_DEVIATIONS,) if kind == "correlation" and sds is None else ())
+    return SampleMoments(tuple(names), matrix, mean, int(n_obs), int(n_obs), 0, source, not_given=not_given), notes

@@ -271,7 +271,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             raise OptionError("summary statistics allow only the normal-theory test: robust tests and standard errors "
                               "need the rows of answers (--robust cannot apply)")
         result = converged(fit_moments(spec, moments, replace(fit_options, diagnostics=False)))
-        return _described(replace(result, warnings=tuple(notes) + result.warnings), spec, None)
+        result = replace(result, warnings=tuple(notes) + result.warnings,
+                         data=replace(result.data, not_given=moments.not_given))
+        return _described(result, spec, None)
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
@@ -283,6 +285,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                        ordinal_estimator, design), ids_by_row_number(ids, frame))
     result = with_odd_values(result, loaded)
+    if missing_codes_option(missing_codes):  # kept with the fit: scores of other data with it read them so too
+        result = replace(result, data=replace(result.data, missing_codes=missing_codes_option(missing_codes)))
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 
@@ -495,8 +499,8 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
                           f"whose robust test is Yuan-Bentler (--robust chooses it); for the Satorra-Bentler test of the "
                           f"complete rows only, choose --incomplete-rows listwise")
     note = (f"{gaps} of {rows} rows miss some answers on model variables; every answer is used by "
-            f"full-information ML (the default when answers are missing; --incomplete-rows listwise would leave those "
-            f"rows out)" + ("; the robust test with full-information ML is the Yuan-Bentler one" if robust else ""))
+            f"full-information ML (the default when answers are missing; a fit of the complete rows only would leave "
+            f"those rows out)" + ("; the robust test with full-information ML is the Yuan-Bentler one" if robust else ""))
     return replace(fit_options, missing=MissingData.FULL_INFORMATION), [note]
 
 

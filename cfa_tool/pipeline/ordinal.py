@@ -143,8 +143,8 @@ def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
         out.append(f"missing answers{where}: every answer is used (pairwise present rows): each item's thresholds come "
                    f"from the rows that answered it, each correlation from the rows that answered both items, from "
                    f"{low[2]} rows ({low[0]}, {low[1]}) to {high[2]} ({high[0]}, {high[1]}) of {len(moments.codes)}; the "
-                   f"standard errors and tests allow for this; --incomplete-rows listwise would use only the "
-                   f"{complete} complete rows")
+                   f"standard errors and tests allow for this; a fit of only the {complete} complete rows would "
+                   f"leave the others out")
     return out
 
 

@@ -140,6 +140,10 @@ class DataSummary:
     # row filters (--keep) as written, and the rows the file held before them (None without filters)
     row_filters: tuple[str, ...] = ()
     rows_in_file: int | None = None
+    # summary statistics: what the file did not give (data.summary_stats.NotGiven), so the fit does not know it
+    not_given: tuple = ()
+    # values read as no answer (--missing-codes), which scoring other data with this fit reads so too
+    missing_codes: tuple[float, ...] = ()
 
     @property
     def pair_range(self) -> tuple[int, int] | None:
@@ -168,6 +172,10 @@ class DataSummary:
             out["pair_rows"] = [{"items": [a, b], "rows": c} for a, b, c in self.pair_rows]
         if self.row_filters:
             out.update(row_filters=list(self.row_filters), rows_in_file=self.rows_in_file)
+        if self.not_given:
+            out["not_given"] = [g.value for g in self.not_given]
+        if self.missing_codes:
+            out["missing_codes"] = list(self.missing_codes)
         return clean(out)
 
 

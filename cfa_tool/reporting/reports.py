@@ -64,9 +64,8 @@ def saved_report(payload: object, source: str) -> Report:
         raise OptionError(f"{source}: not a result written by cfa-tool (the file of a command's --json option)")
     saved = payload.get("report")
     if saved is None:
-        version = payload.get("version", "an earlier version")
-        raise OptionError(f"{source}: this result was written by cfa-tool {version}, whose results do not carry their "
-                          f"report; run the command again with --json")
+        raise OptionError(f"{source}: this result holds no 'report' part (written before results carried their report, "
+                          f"or removed by hand), so there is nothing to show; run the command again with --json")
     try:
         return Report.from_dict(saved)
     except (KeyError, TypeError, ValueError, AttributeError):

@@ -626,8 +626,12 @@ def population_report(simulated) -> Report:
     whether the model file gave it or it took the default."""
     population = simulated.population
     if population.fitted_from is not None:
-        line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}. The data follow the "
-                f"fitted model exactly, so they carry none of that model's misfit to the data it was fitted to.")
+        line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}; the items' means are "
+                f"{population.means_from.value}"
+                + (", and its values are in standard-deviation units (a correlation matrix without standard "
+                   "deviations)" if population.standard_units else "")
+                + ". The data follow the fitted model exactly, so they carry none of that model's misfit to the data "
+                  "it was fitted to.")
     else:
         line = ("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances "
                 "1) and converted to the model's scaling; values from 'start' and 'fix' statements replace them.")

@@ -18,6 +18,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.sample_design import check_design, design_columns
+from cfa_tool.data.summary_stats import NotGiven
 from cfa_tool.errors import DataError, EstimationError, OptionError, printable
 from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.pipeline.results import FitResult, clean
@@ -33,6 +34,9 @@ class RowLeftOut(Enum):
     NO_GROUP = "no value in the group column"
     UNKNOWN_GROUP = "a group the fit does not have"
 
+
+#: the row of a summary-statistics file that gives what a fit lacks (data.summary_stats.NotGiven)
+_SUMMARY_ROW = {NotGiven.MEANS: "mean", NotGiven.STANDARD_DEVIATIONS: "sd"}
 
 #: the header of the id column when the file's row names name the rows
 ROW_NAME_HEADER = "row_name"
@@ -77,6 +81,10 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
         columns[id_name] = ids.tolist()
     for meth in chosen:
         for f, name in enumerate(factors):
+            written = (column_name(name, meth),) + ((column_name(name, meth, "se"),) if with_errors else ())
+            if id_name in written:
+                raise OptionError(f"the id column '{printable(id_name)}' has the name of a column of scores the output "
+                                  f"holds; rename that column in the data, or name the rows by another column")
             columns[column_name(name, meth)] = values[meth][:, f]
             if with_errors:
                 columns[column_name(name, meth, "se")] = errors[meth][:, f]
@@ -230,13 +238,12 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
             raise EstimationError(f"the fitted solution is not admissible ({why}), so no factor scores are written; "
                                   f"run 'fit' to see its problems")
     result = api.with_odd_values(result, loaded)
+    fitted_rows = _fitted_rows(frame, design, spec, group, source)
     if ordinal_items:
         chosen = (ScoreMethod.EXPECTED_A_POSTERIORI,)
-        models, labels = _ordinal_models(spec, _fitted_rows(frame, design, spec, group, source), source, ordinal_items,
-                                         group, reference_group, result, design)
+        models, labels = _ordinal_models(spec, fitted_rows, source, ordinal_items, group, reference_group, result, design)
     else:
-        models, labels = _linear_models(spec, _fitted_rows(frame, design, spec, group, source), source, group,
-                                        reference_group, fit_options, result, design)
+        models, labels = _linear_models(spec, fitted_rows, source, group, reference_group, fit_options, result, design)
     factors = models[0].base.factors if ordinal_items else models[0].factors
     items = models[0].base.items if ordinal_items else models[0].items
     rows = _numeric(frame, items, source)
@@ -289,6 +296,11 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
                         f"the header); give --id COLUMN to name the rows by another column.")
     own = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal_items)
+    unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
+    if unweighted:
+        which = "The row of weight 0 is" if unweighted == 1 else f"The {unweighted} rows of weight 0 are"
+        own.insert(0, f"{which} scored all the same: a row's score follows from its own answers and the fitted "
+                      f"parameters, whatever its weight")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
                        bool(standard_errors or ordinal_items), tuple(extra + own))
@@ -304,6 +316,7 @@ def models_of_fit(result: FitResult) -> tuple[list, list]:
 
     if result.theta is None:
         raise OptionError("this result holds no estimates to score with (a fit to summary statistics?)")
+    refuse_unknown_scale(result.data, "the fit")
     spec = parse_model(result.model_text, source=result.model_source)
     from cfa_tool.pipeline.inputs import without_exploratory_blocks
 
@@ -323,6 +336,20 @@ def models_of_fit(result: FitResult) -> tuple[list, list]:
         means = None if mean_structure else np.asarray(group.sample_mean, dtype=float)
         out.append(scoring_model(model.matrices(result.theta, g), table.observed, table.latent, group.label, means))
     return out, [g.label for g in result.groups]
+
+
+def refuse_unknown_scale(data, what: str) -> None:
+    """An error when the fit (``data``: its DataSummary) is of summary statistics without the items' means or, for a
+    correlation matrix, their standard deviations: raw answers are scored as deviations from the fitted sample's
+    means, in the units of its covariance matrix, so such a fit would give every row a wrong score."""
+    lacking = tuple(getattr(data, "not_given", ()))
+    if not lacking:
+        return
+    words = " or ".join(g.label for g in lacking)
+    raise OptionError(f"{what} is of summary statistics ({printable(str(data.source))}) without {words}, and scores of "
+                      f"answers need the fitted sample's item means and standard deviations; add the "
+                      f"{' and '.join(repr(_SUMMARY_ROW[g]) for g in lacking)} row{'s' if len(lacking) > 1 else ''} to "
+                      f"that file and fit again, or fit the model to the rows of answers")
 
 
 def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
@@ -345,23 +372,26 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                       keep) -> ScoreResult:
     """Rows of ``data`` scored with the given models (one per group of the earlier fit ``result``)."""
     from cfa_tool.pipeline import inputs as api
-    from cfa_tool.data.filters import apply_filters, parse_filter
-    from cfa_tool.data.matching import check_columns
     from cfa_tool.data.row_ids import duplicate_note, row_ids
 
-    loaded = api.load_data(data, sheet, missing_codes, (id_column,) if isinstance(id_column, str) else ())
-    read_frame, source = loaded.frame.set_axis([str(c) for c in loaded.frame.columns], axis=1), loaded.source
+    given = api.missing_codes_option(missing_codes)
+    carried = tuple(c for c in result.data.missing_codes if c not in given)  # the earlier fit's, read so here too
+    spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + carried, keep,
+                                                     (id_column,) if isinstance(id_column, str) else ())
+    frame, source = loaded.frame, loaded.source
+    read_frame = loaded.read_frame if loaded.read_frame is not None else frame
     if not read_frame.index.is_unique:
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index)")
-    check_columns(spec, list(read_frame.columns), source)
     group = result.group_column
     if group is not None and group not in read_frame.columns:
         raise OptionError(f"the fit has groups by '{printable(group)}', which is not a column of {source}")
     ids = row_ids(read_frame, source, id_column, result.observed, group, loaded.row_names)
-    frame, notes = read_frame, []
-    keep = api.keep_option(keep)
-    if keep:
-        frame, notes = apply_filters(read_frame, [parse_filter(k) for k in keep], source, loaded.value_labels)
+    if carried:
+        one = len(carried) == 1
+        notes.insert(0, f"{'The value' if one else 'The values'} {', '.join(f'{c:g}' for c in carried)} in {source} "
+                        f"{'was' if one else 'were'} read as no answer, as the earlier fit read {'it' if one else 'them'} "
+                        f"(its missing-value codes)")
+    result = api.with_odd_values(result, api.analysed_odd_values(loaded, spec, group))
     from cfa_tool.scoring.model import OrdinalScoringModel
 
     ordinal = isinstance(models[0], OrdinalScoringModel)
@@ -471,27 +501,30 @@ class SavedFit:
 
 def read_saved_fit(path) -> SavedFit:
     """A fit's JSON result (``fit --json``), checked to be one."""
-    import json
-
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
-    from cfa_tool.input_files import input_bytes
+    from cfa_tool.input_files import input_json
     from cfa_tool.pipeline.results import DataSummary
 
-    raw = input_bytes(Path(path), "fit result", OptionError, 200_000_000)
+    payload = input_json(Path(path), "fit result", OptionError)
     try:
-        payload = json.loads(raw.decode("utf-8"))
         if payload.get("tool") != "cfa-tool" or "estimates" not in payload:
             raise ValueError
         d = payload["data"]
         counts = d.get("category_counts") or {}
         categories = tuple(tuple((float(c["value"]), int(c["rows"])) for c in counts.get(x, ())) for x in d["variables"])
+        means = tuple(float(v) for v in d["means"])
+        not_given = tuple(NotGiven(v) for v in d.get("not_given", ()))
+        if "not_given" not in d and not any(e.get("kind") == "intercept" for e in payload["estimates"]) \
+                and not any(means) and not counts:
+            not_given = (NotGiven.MEANS,)  # written before fits said so: every item mean 0 is no mean at all
         summary = DataSummary(str(d["source"]), int(d["rows_read"]), int(d["rows_dropped"]), int(d["n_obs"]),
-                              tuple(d["variables"]), tuple(float(v) for v in d["means"]), tuple(float(v) for v in d["sds"]),
-                              categories=categories if counts else ())
+                              tuple(d["variables"]), means, tuple(float(v) for v in d["sds"]),
+                              categories=categories if counts else (), not_given=not_given,
+                              missing_codes=tuple(float(v) for v in d.get("missing_codes", ())))
         problems = tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
                                  q["advice"], q["group"]) for q in payload.get("problems", ()))
         model = payload["model"]
-    except (ValueError, KeyError, TypeError, AttributeError, UnicodeDecodeError):
+    except (ValueError, KeyError, TypeError, AttributeError):
         raise OptionError(f"'{printable(str(path))}' is not the JSON result of a fit by cfa-tool (fit --json)") from None
     return SavedFit(str(model.get("name")), str(model.get("source")), str(payload.get("estimator")), int(payload["n_obs"]),
                     summary, tuple(summary.variables), problems, tuple(payload.get("warnings", ())),
@@ -617,6 +650,7 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     from cfa_tool.pipeline import inputs as api
 
     saved = read_saved_fit(saved_path)
+    refuse_unknown_scale(saved.data, f"the fit in '{printable(str(saved_path))}'")
     if not saved.admissible:
         raise EstimationError(f"the fit in '{printable(str(saved_path))}' is not admissible, so no factor scores are "
                               f"computed with it")

@@ -18,6 +18,7 @@ set so that each item's variance stays 1.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from enum import Enum
 
 import numpy as np
 import pandas as pd
@@ -35,6 +36,16 @@ STANDARDIZED_LOADING = 0.7
 FACTOR_CORRELATION = 0.3
 
 
+class ItemMeans(Enum):
+    """Where the items' population means come from."""
+
+    CENTRED = "every item centred at 0 (a population from the model file)"
+    INTERCEPTS = "the earlier fit's intercepts (and factor means)"
+    SAMPLE_MEANS = "the item means of the rows the earlier fit was fitted to (it estimated no intercepts)"
+    UNKNOWN = "not known to the earlier fit (summary statistics without means): every item centred at 0"
+    THRESHOLDS = "set by the earlier fit's thresholds (answers 1 to k)"
+
+
 @dataclass(frozen=True, eq=False)
 class Population:
     spec: Spec
@@ -46,6 +57,11 @@ class Population:
     #: ordinal items: each item's thresholds on its standardized latent response, in model order of the items (None:
     #: every item continuous); set by an earlier ordinal fit or by a number of categories
     thresholds: dict[str, np.ndarray] | None = None
+    #: the continuous items' means, in model order of the items (None: every item centred at 0), and their source
+    means: np.ndarray | None = None
+    means_from: ItemMeans = ItemMeans.CENTRED
+    #: an earlier fit of a correlation matrix without standard deviations: values in standard-deviation units
+    standard_units: bool = False
 
     @property
     def ordinal_items(self) -> tuple[str, ...]:
@@ -72,6 +88,10 @@ class Population:
             seen.add(par.terms[0][0])
             out.append({"kind": par.kind, "variables": list(par.variables), "value": float(entries[e]),
                         "standardized": float(standardized[e]), "default": self.table.free_labels[par.terms[0][0]] in defaulted})
+        if self.means is not None:  # each item's population mean; standardized: in its standard deviations
+            out.extend({"kind": "item_mean", "variables": [x], "value": float(mu),
+                        "standardized": float(mu / np.sqrt(self.sigma[k, k])), "default": False}
+                       for k, (x, mu) in enumerate(zip(self.observed, self.means)) if x not in self.ordinal_items)
         for item in self.ordinal_items:  # on the latent response's scale (variance 1): standardized already
             out.extend({"kind": "threshold", "variables": [item, str(step + 1)], "value": float(tau),
                         "standardized": float(tau), "default": self.fitted_from is None}
@@ -158,40 +178,34 @@ def standardized_entries(table: ParameterTable, model: StructuredModel, theta: n
     return standardize_entries(model.matrices(theta), codes, rows, cols, model.entry_values(theta))[0]
 
 
-MAX_RESULT_BYTES = 200_000_000
 _COVARIANCE_KINDS = ("factor_covariance", "residual_covariance")
 
 
-def fitted_estimates(fitted) -> tuple[list[dict], str, bool, bool, bool]:
+def fitted_estimates(fitted) -> tuple[list[dict], str, bool, bool, bool, dict]:
     """The estimate rows of an earlier fit and where they came from: ``fitted`` is a fit result, the dict of
-    its JSON (``fit --json``) or the path of that JSON file."""
-    import json
+    its JSON (``fit --json``) or the path of that JSON file; last, the whole result as that dict."""
     from pathlib import Path
 
-    from cfa_tool.input_files import input_bytes
+    from cfa_tool.input_files import input_json
 
     if hasattr(fitted, "to_dict") and hasattr(fitted, "estimates"):
-        return (fitted.to_dict()["estimates"], "the fit result given", bool(fitted.admissible), fitted.multigroup,
-                bool(fitted.method.ordinal))
+        payload = fitted.to_dict()
+        return (payload["estimates"], "the fit result given", bool(fitted.admissible), fitted.multigroup,
+                bool(fitted.method.ordinal), payload)
     source = "the result given"
     if isinstance(fitted, (str, Path)):
         source = str(fitted)
-        raw = input_bytes(fitted, "fitted result", OptionError, MAX_RESULT_BYTES)
-        try:
-            fitted = json.loads(raw.decode("utf-8-sig"))
-        except (UnicodeDecodeError, ValueError) as exc:
-            raise OptionError(f"{source}: not a result written by 'cfa-tool fit --json' (it is not JSON: "
-                              f"{str(exc).splitlines()[0][:80]})") from None
+        fitted = input_json(fitted, "fit result", OptionError)
     if not isinstance(fitted, dict) or not isinstance(fitted.get("estimates"), list):
         raise OptionError(f"{source}: not a result written by 'cfa-tool fit --json' (it has no 'estimates' list)")
     return (fitted["estimates"], source, fitted.get("admissible", True) is not False, "groups" in fitted,
-            bool(fitted.get("ordinal_items")))
+            bool(fitted.get("ordinal_items")), fitted)
 
 
 def _population_from_fit(spec: Spec, fitted) -> Population:
     """Population values taken from an earlier fit of the same model: every free parameter's estimate, so
     reverse-keyed loadings, negative correlations and the observed residual variances carry over."""
-    rows, source, admissible, grouped, ordinal = fitted_estimates(fitted)
+    rows, source, admissible, grouped, ordinal, payload = fitted_estimates(fitted)
     if grouped:
         raise OptionError(f"{source}: the fit has groups; population values are taken from a fit of one group")
     if not admissible:
@@ -263,7 +277,36 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
     cuts = {x: np.asarray(thresholds[x], dtype=float) for x in table.observed if x in thresholds}
     if any(np.any(np.diff(t) <= 0) or not np.isfinite(t).all() for t in cuts.values()):
         raise OptionError(f"{source}: its thresholds are not increasing finite numbers")
-    return Population(spec, table, theta, sigma, (), source, cuts or None)
+    means, means_from = _fitted_means(model, theta, value_of, payload, table.observed, ordinal)
+    not_given = payload.get("data", {}).get("not_given", ()) if isinstance(payload.get("data"), dict) else ()
+    return Population(spec, table, theta, sigma, (), source, cuts or None, means, means_from,
+                      "standard_deviations" in not_given)
+
+
+def _fitted_means(model: StructuredModel, theta: np.ndarray, value_of: dict, payload: dict, observed: tuple[str, ...],
+                  ordinal: bool) -> tuple[np.ndarray | None, ItemMeans]:
+    """The items' population means from an earlier fit: nu + L (I - B)^-1 alpha from its intercepts and factor
+    means when it estimated them (the model-implied means, Bollen 1989, ch. 8), else the item means of the rows it
+    was fitted to (the maximum-likelihood means of a model without a mean structure); none when the fit knew no
+    means (summary statistics without them) or its items are ordinal (their thresholds set the answers)."""
+    if ordinal:
+        return None, ItemMeans.THRESHOLDS
+    intercepts = [value_of.get(("intercept", (x,))) for x in observed]
+    if all(v is not None for v in intercepts):
+        mats = model.matrices(theta)
+        alpha = np.array([value_of.get(("mean", (f,)), (0.0, False))[0] for f in model.table.latent])
+        return np.array([v for v, _ in intercepts]) + mats.L @ (mats.A @ alpha), ItemMeans.INTERCEPTS
+    data = payload.get("data")
+    try:
+        if "means" in data.get("not_given", ()):
+            return None, ItemMeans.UNKNOWN
+        names = [str(v) for v in data["variables"]]
+        means = np.array([float(data["means"][names.index(x)]) for x in observed])
+    except (AttributeError, KeyError, TypeError, ValueError, IndexError):
+        raise OptionError("the earlier fit's data summary (its item means) is missing or changed by hand") from None
+    if not np.isfinite(means).all():
+        raise OptionError("the earlier fit's item means are not finite numbers")
+    return means, ItemMeans.SAMPLE_MEANS
 
 
 def population_from_spec(spec: Spec, fitted=None) -> Population:
@@ -388,6 +431,8 @@ def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing
     rng = np.random.default_rng(seed)
     rows = simulate_rows(population.sigma, n, rng)
     cut = population.ordinal_items
+    if population.means is not None:  # continuous items about their means; ordinal ones are cut from centred ones
+        rows += np.where(np.isin(np.asarray(population.observed), cut), 0.0, population.means)
     if cut:
         rows = cut_at_thresholds(rows, population.sigma, population.observed, population.thresholds)
     if missing:

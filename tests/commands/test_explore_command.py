@@ -140,7 +140,7 @@ def test_the_draft_never_replaces_an_existing_file(tmp_path, capsys):
     draft = tmp_path / "mine.cfa"
     draft.write_text("factor f: x1, x2, x3\n")
     code, _, err = _run(["explore", "--data", HS_FILE, "--items", "x1..x9", "--draft", draft], capsys)
-    assert code == 2 and "was not written by cfa-tool" in err
+    assert code == 2 and "exists, and this output never replaces a file" in err
     assert draft.read_text() == "factor f: x1, x2, x3\n"
 
 

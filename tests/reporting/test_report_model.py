@@ -255,11 +255,11 @@ def _error_line(err: str) -> str:
 
 
 @pytest.mark.parametrize("content, words", [
-    (b"factor f: a, b, c\n", "not a JSON result (line 1, column 1"),
-    (b"\xff\xfe\x00", "not a JSON result (not UTF-8 text)"),
+    (b"factor f: a, b, c\n", "is not JSON (line 1, column 1"),
+    (b"\xff\xfe\x00", "is not UTF-8 text"),
     (b'{"a": 1}', "not a result written by cfa-tool"),
     (b"[1, 2]", "not a result written by cfa-tool"),
-    (b'{"tool": "cfa-tool", "version": "0.9", "fit": {}}', "do not carry their report; run the command again"),
+    (b'{"tool": "cfa-tool", "version": "0.9", "fit": {}}', "holds no 'report' part"),
     (b'{"tool": "cfa-tool", "version": "1", "report": {"kind": "fit", "title": "x"}}', "incomplete or changed by hand"),
     (b'{"tool": "cfa-tool", "version": "1", "report": {"kind": "nonsense", "title": "x", "notice": null, "lines": [],'
      b' "tables": []}}', "incomplete or changed by hand"),
@@ -287,7 +287,7 @@ def test_report_never_replaces_its_input_or_a_file_it_did_not_write(tmp_path, ca
     assert code == 2 and "input file" in _error_line(err)
     assert saved.read_bytes() == before
     code, _, err = _run(["report", tmp_path / "missing.json"], capsys)
-    assert code == 2 and "no such file" in _error_line(err)
+    assert code == 2 and "does not exist" in _error_line(err)
     code, out, err = _run(["report", saved, "--html", "/dev/null"], capsys)  # a special file is written in place
     assert code == 0, err
     assert out == "HTML report written to /dev/null\n"  # the file alone: no terminal view beside it

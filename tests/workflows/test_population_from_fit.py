@@ -76,7 +76,7 @@ def test_command_line(tmp_path, fitted):
     bad = tmp_path / "bad.json"
     bad.write_text("{not json")
     proc = run("simulate", str(model), "--n", "50", "--output", str(tmp_path / "sim2.csv"), "--population-from", str(bad))
-    assert proc.returncode == 2 and "not a result written by 'cfa-tool fit --json'" in proc.stderr
+    assert proc.returncode == 2 and "bad.json' is not JSON (line 1" in proc.stderr
     proc = run("simulate", str(model), "--n", "50", "--output", str(result), "--population-from", str(result))
     assert proc.returncode == 2 and json.loads(result.read_text())["estimates"]  # the input is never replaced
 
@@ -92,13 +92,16 @@ def test_rows_of_data_never_replace_an_existing_file(tmp_path, hs_data):
     for args in (["simulate", str(model), "--n", "20", "--output", str(other)],
                  ["scores", str(model), "--data", str(data), "--output", str(other)]):
         proc = run(*args)
-        assert proc.returncode == 2 and "was not written by cfa-tool" in proc.stderr, args
+        assert proc.returncode == 2 and "exists, and this output never replaces a file" in proc.stderr, args
         assert other.read_text() == "a,b\n1,2\n"
     assert data.read_bytes() == before
 
 
 def test_a_fit_with_gaps_serves_as_a_population(hs_data):
-    # full-information ML estimates intercepts as well; they are left out of the (centred) population
+    """Full-information ML estimates intercepts as well: they are the population's item means (factor means 0 in
+    one group, so each item's mean is its intercept, the fit's own estimate)."""
+    from cfa_tool.workflows.simulation import ItemMeans
+
     holed = hs_data.copy()
     rng = np.random.default_rng(2)
     for item in [f"x{i}" for i in range(1, 10)]:
@@ -106,6 +109,36 @@ def test_a_fit_with_gaps_serves_as_a_population(hs_data):
     fitted = cfa_tool.fit(THREE, holed)
     population = population_from_spec(cfa_tool.parse_model(THREE), fitted)
     assert np.allclose(population.sigma, fitted.implied_covariance, atol=1e-10)
+    intercepts = {r.variables[0]: r.estimate for r in fitted.estimates if r.kind == "intercept"}
+    assert population.means_from is ItemMeans.INTERCEPTS
+    np.testing.assert_allclose(population.means, [intercepts[x] for x in population.observed], atol=1e-12)
+
+
+def test_simulated_items_keep_the_fitted_means(tmp_path, fitted, hs_data):
+    """A fit without intercepts (complete rows, one group) has the item means of its rows as the maximum-likelihood
+    means; the simulated items approach them (the pupils' means computed by pandas; Monte Carlo error at N =
+    200,000 about sd / 450 < .01), and the report and its population table say where they come from."""
+    from cfa_tool.workflows.simulation import ItemMeans
+
+    data = simulate(THREE, 200_000, seed=5, population=fitted)
+    assert data.population.means_from is ItemMeans.SAMPLE_MEANS
+    items = [f"x{i}" for i in range(1, 10)]
+    np.testing.assert_allclose(data.frame[items].mean().to_numpy(), hs_data[items].mean().to_numpy(), atol=0.02)
+    _, _, out, population = simulated_from_fit(tmp_path, THREE, fitted, n=20)
+    listed = {v["variables"][0]: v["value"] for v in population if v["kind"] == "item_mean"}
+    np.testing.assert_allclose([listed[x] for x in items], hs_data[items].mean().to_numpy(), atol=1e-9)
+    proc = run("report", str(tmp_path / "pop.json"))
+    assert "item means of the rows the earlier fit was fitted to" in " ".join(proc.stdout.split())
+
+
+def test_a_fit_without_means_simulates_centred_items_and_says_so(tmp_path, hs_data):
+    from cfa_tool.workflows.simulation import ItemMeans
+
+    x = hs_data[[f"x{i}" for i in range(1, 10)]]
+    fitted = cfa_tool.fit(THREE, covariance=x.cov(), n_obs=len(x))
+    data = simulate(THREE, 50, population=fitted)
+    assert data.population.means is None and data.population.means_from is ItemMeans.UNKNOWN
+    assert "not known to the earlier fit" in " ".join(data.summary().split())
 
 
 def test_row_names_are_kept_as_written(tmp_path):
