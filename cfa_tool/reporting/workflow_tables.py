@@ -575,11 +575,19 @@ def _ordinal_power_lines(result) -> list[str]:
             f"{100 * result.model_rejected:.1f}% of the converged replications (nominal {100 * result.alpha:g}%)."]
 
 
+def _inadmissible_phrase(results) -> str:
+    """How many converged replications had a negative variance estimate, per sample size; they are kept."""
+    counts = ", ".join(f"{r.inadmissible}" + (f" at N = {r.n_obs}" if len(results) > 1 else "") for r in results)
+    return (f"converged replications with a negative variance estimate (inadmissible): {counts}; they are included in "
+            f"the power, coverage and bias figures")
+
+
 def montecarlo_report(result) -> Report:
     if hasattr(result, "results"):  # a power curve: several sample sizes
         return power_curve_report(result)
     lines = [f"{result.converged} of {result.replications} replications converged "
-             f"({100 * result.converged / result.replications:.1f}%)."] + _ordinal_power_lines(result)
+             f"({100 * result.converged / result.replications:.1f}%); {_inadmissible_phrase([result])}."
+             ] + _ordinal_power_lines(result)
     if result.defaulted:
         lines.append("Population values not given in the model file took defaults: " + ", ".join(result.defaulted))
     # what decides the plan first: power, then whether intervals and estimates can be trusted at this N
@@ -601,7 +609,8 @@ def montecarlo_report(result) -> Report:
 def power_curve_report(curve) -> Report:
     """Power per parameter (rows) and sample size (columns), with each size's convergence."""
     first = curve.results[0]
-    lines = ["Converged: " + ", ".join(f"{r.converged} of {r.replications} at N = {r.n_obs}" for r in curve.results) + "."]
+    lines = ["Converged: " + ", ".join(f"{r.converged} of {r.replications} at N = {r.n_obs}" for r in curve.results)
+             + f"; {_inadmissible_phrase(curve.results)}."]
     if first.ordinal:
         lines += [_ordinal_power_lines(first)[0], f"The {ADJUSTED_TEST} test rejected the true model at alpha "
                   f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {r.n_obs}"

@@ -56,12 +56,15 @@ class MonteCarloPower(Presentable):
     #: whose adjusted test rejected the (true) model at alpha
     ordinal: str | None = None
     model_rejected: float | None = None
+    #: converged replications with a negative variance estimate (an inadmissible solution); they stay in the figures
+    inadmissible: int = 0
 
     def to_dict(self) -> dict:
         return {"n_obs": self.n_obs, "replications": self.replications, "converged": self.converged,
                 "convergence_rate": self.converged / self.replications, "alpha": self.alpha, "seed": self.seed,
                 "parameters": [p.to_dict() for p in self.parameters], "population_defaults": list(self.defaulted),
-                "ordinal_items_fitted_by": self.ordinal, "model_test_rejection_rate": self.model_rejected}
+                "ordinal_items_fitted_by": self.ordinal, "model_test_rejection_rate": self.model_rejected,
+                "inadmissible": self.inadmissible}
 
 
 @dataclass(frozen=True)
@@ -176,9 +179,11 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
         if not ok:
             raise OptionError(f"no replication converged at N = {n}; check the population values and the sample size")
         thetas, ses = np.array([d.values for d in ok]), np.array([d.se for d in ok])
+        variances = [i for i, key in enumerate(keys) if key[0] in VARIANCE_KINDS]
         powers.append(MonteCarloPower(n, replications, len(ok), alpha, seed,
                                       _parameter_rows(table.free_labels, np.array(truth), thetas, ses, alpha), defaulted,
-                                      weighting.phrase, float(np.mean([d.p_value < alpha for d in ok]))))
+                                      weighting.phrase, float(np.mean([d.p_value < alpha for d in ok])),
+                                      _negative_variances(thetas, variances)))
     return powers[0] if len(sizes) == 1 else PowerCurve(tuple(powers))
 
 
@@ -196,7 +201,18 @@ def _summary(population, n_obs: int, replications: int, seed: int, alpha: float,
     thetas = np.array([t for t, _ in ok])
     ses = np.array([se[[entry_of[k] for k in range(table.n_free)]] for _, se in ok])
     rows = _parameter_rows(table.free_labels, population.theta, thetas, ses, alpha)
-    return MonteCarloPower(n_obs, replications, len(ok), alpha, seed, rows, population.defaulted)
+    variances = sorted({p.terms[0][0] for p in table.parameters if p.kind in VARIANCE_KINDS and len(p.terms) == 1})
+    return MonteCarloPower(n_obs, replications, len(ok), alpha, seed, rows, population.defaulted,
+                           inadmissible=_negative_variances(thetas, variances))
+
+
+#: the parameters whose negative estimate makes a solution inadmissible (a Heywood case)
+VARIANCE_KINDS = ("factor_variance", "residual_variance")
+
+
+def _negative_variances(thetas: np.ndarray, positions: list[int]) -> int:
+    """How many replications (rows of ``thetas``) have a negative estimate among the free variances."""
+    return int((thetas[:, positions] < 0).any(axis=1).sum()) if positions else 0
 
 
 def _parameter_rows(labels, population: np.ndarray, thetas: np.ndarray, ses: np.ndarray,

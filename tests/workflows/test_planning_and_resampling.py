@@ -307,3 +307,30 @@ def test_bootstrap_with_frequency_weights_resamples_the_rows_they_count(hs_data)
     ratios = np.array([a / b for a, b in pairs])
     # two independent bootstraps of 300: each SE has about 4% Monte Carlo error, so the median ratio is near 1
     assert len(ratios) >= 6 and 0.85 < np.median(ratios) < 1.15, ratios
+
+
+def test_power_simulation_counts_negative_variance_estimates():
+    # An item whose residual variance is small (.05, loading 1 on a factor of variance .9) at N = 60: its estimate is
+    # negative in a share of samples near Phi(-theta / SE), SE from the expected information at the population values
+    # (the estimate's asymptotic normal distribution).  The count is reported, not hidden (hostile trial).
+    from scipy import stats
+
+    from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood
+    from cfa_tool.model.implied import StructuredModel
+    from cfa_tool.reporting.reports import report_of
+
+    spec = parse_model("factor f: y1, y2, y3, y4\nstart variance(f) = 0.9\nstart loading(f, y2), loading(f, y3) = 0.7\n"
+                       "start loading(f, y4) = 1\nstart variance(y4) = 0.05\n"
+                       "start variance(y1), variance(y2), variance(y3) = 0.5\n")
+    population = population_from_spec(spec)
+    n = 60
+    info = NormalLikelihood(StructuredModel(population.table),
+                            [GroupMoments(population.sigma, np.zeros(4), n)]).evaluate(population.theta).information
+    k = population.table.free_labels.index("variance(y4)")
+    share = stats.norm.cdf(-population.theta[k] / np.sqrt(2 / n * np.linalg.inv(info)[k, k]))  # about .22
+    result = monte_carlo_power(spec, n, replications=400, seed=3, workers=1)
+    expected = share * result.converged
+    assert abs(result.inadmissible - expected) < 4 * np.sqrt(expected * (1 - share))
+    assert f"(inadmissible): {result.inadmissible};" in " ".join(report_of(result).lines[0].split())
+    assert result.to_dict()["inadmissible"] == result.inadmissible
+    assert monte_carlo_power(spec, 3000, replications=20, seed=3, workers=1).inadmissible == 0
