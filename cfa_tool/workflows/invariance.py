@@ -28,7 +28,7 @@ from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.workflows.nesting import DifferenceTest, difference_test
+from cfa_tool.workflows.nesting import DifferenceTest, difference_test, scaled_difference_tests
 from cfa_tool.views import Presentable
 from cfa_tool.method import DecisionRule  # (declared with the other choices; imported from here too)
 
@@ -469,7 +469,14 @@ class NormalLadder:
         return with_design(result, self.design) if self.design is not None else result
 
     def difference(self, est, result, previous, level, previous_level) -> DifferenceTest:
-        return difference_test(result, previous[1], level, previous_level)
+        """The scaled difference (Satorra & Bentler 2001) when the fits carry a robust test, as the report says;
+        the likelihood-ratio difference otherwise (or when the scaled one's correction is not positive)."""
+        general = previous[1]
+        if result.robust is not None and general.robust is not None:
+            scaled = scaled_difference_tests(result, general, level, previous_level, None)[0]
+            if not scaled.not_computed:
+                return scaled
+        return difference_test(result, general, level, previous_level)
 
     def constraint_tests(self, est, kinds):
         return equality_score_tests(est.model, est.theta, est.likelihood, kinds)

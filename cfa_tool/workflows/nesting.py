@@ -164,8 +164,18 @@ def difference_test(restricted: FitResult, general: FitResult, restricted_name: 
     r, g = restricted.fit, general.fit
     diff = r.chi_square - g.chi_square
     ddf = r.df - g.df
+    design = getattr(general, "design", None)
+    if design is not None and design.columns.robust:  # a weighted (pseudo-) likelihood or clustered rows: no test
+        return DifferenceTest(restricted_name, general_name, diff, ddf, float("nan"), DifferenceMethod.LIKELIHOOD_RATIO,
+                              r.cfi - g.cfi, r.rmsea - g.rmsea, PSEUDO_LIKELIHOOD)
     p = float(dist.chi2_sf(max(diff, 0.0), ddf)) if ddf > 0 else float("nan")
     return DifferenceTest(restricted_name, general_name, diff, ddf, p, DifferenceMethod.LIKELIHOOD_RATIO, r.cfi - g.cfi, r.rmsea - g.rmsea)
+
+
+#: why the plain likelihood-ratio difference is not a test under a sampling design
+PSEUDO_LIKELIHOOD = ("under the sampling design the likelihood is a weighted pseudo-likelihood (or the rows are not "
+                     "independent), so the plain difference does not follow a chi-square distribution; read the scaled "
+                     "difference")
 
 
 def scaled_difference_tests(restricted: FitResult, general: FitResult, restricted_name: str, general_name: str,

@@ -153,3 +153,40 @@ def test_a_configural_model_that_does_not_converge_is_an_estimation_error(hs_dat
 
     with pytest.raises(EstimationError, match="the configural model did not converge"):
         invariance("factor f: x1, x2, x3\n", hs_data, "school", max_iterations=1)
+
+
+def test_robust_invariance_steps_use_the_scaled_difference(hs_data):
+    # With a robust test each step's difference is the scaled difference of Satorra & Bentler (2001), as the report
+    # says: c_d = (df0 c0 - df1 c1) / (df0 - df1), T_d = (T0 - T1) / c_d, p from scipy's chi-square; it was the plain
+    # likelihood-ratio difference before (a lead's check after a new-user trial).
+    from scipy import stats
+
+    from cfa_tool.method import DifferenceMethod
+    from tests.conftest import THREE_FACTORS
+
+    ladder = invariance(THREE_FACTORS, hs_data, "school", test="satorra-bentler")
+    for before, step in zip(ladder.steps, ladder.steps[1:]):
+        r, g = step.result, before.result
+        test = step.versus_previous
+        cd = (r.fit.df * r.robust.scaling_factor - g.fit.df * g.robust.scaling_factor) / (r.fit.df - g.fit.df)
+        assert test.method is DifferenceMethod.SATORRA_BENTLER_2001
+        assert test.chi_square_difference == pytest.approx((r.fit.chi_square - g.fit.chi_square) / cd, rel=1e-10)
+        assert test.p_value == pytest.approx(stats.chi2.sf(test.chi_square_difference, r.fit.df - g.fit.df), rel=1e-8)
+
+
+def test_the_plain_difference_is_no_test_under_sampling_weights(hs_data):
+    # a weighted likelihood is a pseudo-likelihood: compare gives its plain difference without a p-value, and the
+    # scaled one with it (new-user trial)
+    import numpy as np
+
+    from cfa_tool.method import DifferenceMethod
+    from cfa_tool.workflows.compare import compare
+    from tests.conftest import THREE_FACTORS
+
+    data = hs_data.assign(w=np.where(hs_data["school"] == "Pasteur", 2.0, 1.0))
+    result = compare([THREE_FACTORS + "equal loading(visual, x2), loading(visual, x3)\n", THREE_FACTORS], data,
+                     weights="w")
+    plain = next(t for t in result.tests if t.method is DifferenceMethod.LIKELIHOOD_RATIO)
+    scaled = next(t for t in result.tests if t.method is DifferenceMethod.SATORRA_BENTLER_2001)
+    assert plain.p_value != plain.p_value and "pseudo-likelihood" in plain.not_computed
+    assert 0 <= scaled.p_value <= 1 and not scaled.not_computed
