@@ -316,7 +316,8 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
                         f"given") from None
     except EstimationError as error:
         complete = int(observed.all(axis=1).sum())
-        remedy = ("leave this group out or join it with another (--keep), or analyse fewer items" if group is not None
+        remedy = ("leave this group out with a row filter (--keep), join it with another group by recoding the group "
+                  "column, or analyse fewer items" if group is not None
                   else "analyse fewer items, or gather rows that answer more of them")
         raise EstimationError(f"{source}: {error}; {complete} of its {n} rows answer all {p} items. What to try: "
                               f"{remedy}") from None

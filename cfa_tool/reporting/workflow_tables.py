@@ -409,7 +409,8 @@ def replication_report(replications) -> Report:
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
-    return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), (), tuple(tables), tuple(notes),
+    split = tuple(dict.fromkeys(rep.split_rows for rep in reps if rep.split_rows))
+    return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), split, tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE))
 
 

@@ -66,6 +66,8 @@ class Replication(Presentable):
     adjusted: bool = False
     #: values in the item columns of either data set that look like no answers (assessment.admissibility.Problem)
     data_problems: tuple = ()
+    #: random halves of one file: which rows were split (rows with missing answers left out before the split)
+    split_rows: str = ""
 
     def to_dict(self) -> dict:
         loose = self.loose.fit.to_dict() if self.loose.fit is not None else None
@@ -75,6 +77,7 @@ class Replication(Presentable):
 
         return clean({
             "data_problems": [p.to_dict() for p in self.data_problems],
+            "split_rows": self.split_rows or None,
             "calibration": {"data": self.calibration, "n_obs": self.calibration_result.n_obs,
                             "admissible": self.calibration_result.admissible,
                             "problems": [p.to_dict() for p in self.calibration_result.problems],
@@ -246,22 +249,37 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse."""
     seed = check.seed(seed)
     spec = load_spec(model)
-    ordinal_items, method, _ = _ordinal_setup(spec, ordinal, ordinal_estimator, options if missing is None else {**options, "missing": missing})
+    ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
+                                                     options if missing is None else {**options, "missing": missing})
     frame, source = load_frame(data, sheet, missing_codes)
     check_columns(spec, [str(c) for c in frame.columns], source)
     screen = screened(frame, spec.observed_names, source)
     with odd_values_named(screen):
-        pair = _split_half(spec, frame, source, seed, ordinal_items, method, missing, **options)
+        pair = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)
     problems = odd_value_problems(screen)
-    return tuple(replace(rep, data_problems=problems) for rep in pair)
+    return tuple(replace(rep, data_problems=problems, split_rows=_split_rows(frame, spec, rep)) for rep in pair)
+
+
+def _split_rows(frame: pd.DataFrame, spec: Spec, rep: Replication) -> str:
+    """Which rows of the file the halves were drawn from, in a sentence for the report."""
+    split = rep.calibration_result.n_obs + rep.loose.n_obs
+    if split >= len(frame):
+        return f"The {split} rows of the file were split at random into two halves."
+    answering = len(frame.dropna(subset=list(spec.observed_names), how="all"))
+    why = ("they miss some answers, and the halves hold complete rows only" if split < answering else
+           "they answer none of the model's items")
+    return (f"{split} of the {len(frame)} rows were split at random into two halves; the other {len(frame) - split} "
+            f"were left out before the split ({why}).")
 
 
 def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal_items, method, missing,
-                **options) -> tuple[Replication, Replication]:
+                pairwise: bool = False, **options) -> tuple[Replication, Replication]:
+    """The halves of the rows fit would analyse: with gaps kept (full-information ML, or ordinal items' pairwise
+    rows), every row with an answer; else the complete rows."""
     handling = MissingData.LISTWISE
     if not ordinal_items:
         handling, _ = refit_missing_handling(frame, spec.observed_names, missing)
-    if handling is MissingData.FULL_INFORMATION:
+    if handling is MissingData.FULL_INFORMATION or (ordinal_items and pairwise):
         complete = frame.dropna(subset=list(spec.observed_names), how="all")
         kind = "rows with answers"
     else:
@@ -275,8 +293,8 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
     a = complete.iloc[np.sort(order[:half])]
     b = complete.iloc[np.sort(order[half:])]
     if ordinal_items:
-        ma = _ordinal_moments(spec, a, f"{source} (half A, seed {seed})", ordinal_items, False)
-        mb = _ordinal_moments(spec, b, f"{source} (half B, seed {seed})", ordinal_items, False)
+        ma = _ordinal_moments(spec, a, f"{source} (half A, seed {seed})", ordinal_items, pairwise)
+        mb = _ordinal_moments(spec, b, f"{source} (half B, seed {seed})", ordinal_items, pairwise)
         return (replicate_ordinal(spec, ma, mb, method, **options), replicate_ordinal(spec, mb, ma, method, **options))
     ma = sample_moments(a, spec.observed_names, f"{source} (half A, seed {seed})", missing=handling)
     mb = sample_moments(b, spec.observed_names, f"{source} (half B, seed {seed})", missing=handling)

@@ -10,7 +10,7 @@ import pytest
 import cfa_tool
 from cfa_tool.errors import OptionError
 from cfa_tool.workflows.compare import compare
-from cfa_tool.workflows.replication import replicate, split_half
+from cfa_tool.workflows.replication import Replications, replicate, split_half
 from tests.conftest import ONE_FACTOR, THREE_FACTORS
 from tests.commands.test_cli import DATA, MODEL, run
 
@@ -84,6 +84,26 @@ def test_split_half_is_seeded_and_runs_both_ways(hs_data):
     # a model that fits the population should cross-validate better than the one-factor rival
     one = split_half(ONE_FACTOR, hs_data, seed=5)
     assert first[0].cvi < one[0].cvi
+
+
+def test_split_halves_of_ordinal_items_keep_rows_with_gaps_and_the_report_says_which_rows(hs_data):
+    # ordinal items keep their pairwise rows as fit does (the halves held complete rows only, silently); a listwise
+    # split says how many rows it left out (new-user trial)
+    from cfa_tool.reporting.reports import report_of
+
+    data = hs_data.copy()
+    for k, item in enumerate([f"x{i}" for i in range(1, 10)]):
+        data[item] = np.digitize(data[item], np.quantile(data[item], [0.25, 0.5, 0.75])) + 1
+        data.loc[data.index[k::15], item] = np.nan  # about 60% of the rows miss one answer
+    complete = int(data.dropna().shape[0])
+    assert complete < 200
+    pairwise = split_half(THREE_FACTORS, data, seed=2, ordinal="all")
+    assert pairwise[0].calibration_result.n_obs + pairwise[0].loose.n_obs == 301
+    assert report_of(Replications(pairwise)).lines[0] == "The 301 rows of the file were split at random into two halves."
+    listwise = split_half(THREE_FACTORS, data, seed=2, ordinal="all", missing="listwise")
+    assert listwise[0].calibration_result.n_obs + listwise[0].loose.n_obs == complete
+    assert report_of(Replications(listwise)).lines[0].startswith(
+        f"{complete} of the 301 rows were split at random into two halves; the other {301 - complete} were left out")
 
 
 def test_cli_compare_invariance_replicate_json(tmp_path):
