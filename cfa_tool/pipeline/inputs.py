@@ -499,8 +499,8 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
                           f"whose robust test is Yuan-Bentler (--robust chooses it); for the Satorra-Bentler test of the "
                           f"complete rows only, choose --incomplete-rows listwise")
     note = (f"{gaps} of {rows} rows miss some answers on model variables; every answer is used by "
-            f"full-information ML (the default when answers are missing; a fit of the complete rows only would leave "
-            f"those rows out)" + ("; the robust test with full-information ML is the Yuan-Bentler one" if robust else ""))
+            f"full-information ML (the default when answers are missing; a fit of the complete rows only "
+            f"(--incomplete-rows listwise) would leave those rows out)" + ("; the robust test with full-information ML is the Yuan-Bentler one" if robust else ""))
     return replace(fit_options, missing=MissingData.FULL_INFORMATION), [note]
 
 

@@ -4,6 +4,7 @@ writer draws.  Problems of the fitted solution come first."""
 from __future__ import annotations
 
 from cfa_tool.reporting import tables as T
+from cfa_tool.reporting.remedies import Remedy
 from cfa_tool.reporting.numbers import unit
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
@@ -143,8 +144,11 @@ ABOUT_THE_FIT = "About the fit (not the scored data): "
 
 def notes(result) -> list[str]:
     """The fit's notes (said to be about the fit when other data are scored), then the scores' own."""
-    about = ABOUT_THE_FIT if result.scored_source else ""
-    return [about + w for w in result.fit.warnings] + list(result.notes)
+    if not result.scored_source:
+        return list(result.fit.warnings) + list(result.notes)
+    # the fit's advice named its own options; scoring other data takes none of them
+    option = f" ({Remedy.COMPLETE_ROWS.option})"
+    return [ABOUT_THE_FIT + w.replace(option, "") for w in result.fit.warnings] + list(result.notes)
 
 
 def scores_report(result):

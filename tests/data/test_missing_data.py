@@ -282,3 +282,10 @@ def test_a_constant_or_collinear_item_with_gaps_is_named_not_a_traceback(hs_hole
     data.loc[data["x4"].isna(), "x5"] = np.nan  # where x4 is missing, so is its copy
     with pytest.raises(cfa_tool.errors.DataError, match=words):
         cfa_tool.fit(THREE_FACTORS, data, missing="full-information")
+
+
+def test_a_fit_with_gaps_names_its_own_way_to_complete_rows(hs_holes):
+    # fit has --incomplete-rows, so its note names it (scores from an earlier fit drop it: see the scores tests)
+    result = cfa_tool.fit(THREE_FACTORS, hs_holes)
+    assert any("a fit of the complete rows only (--incomplete-rows listwise) would leave those rows out" in w
+               for w in result.warnings)
