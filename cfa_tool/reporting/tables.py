@@ -150,7 +150,7 @@ def row_problem(result, kind: str, variables: tuple[str, ...], group: str | None
 UNADJUSTED = "unadjusted"
 
 
-def _unadjusted(label: str) -> str:
+def unadjusted_label(label: str) -> str:
     """'RMSEA [90% interval]' -> 'RMSEA (unadjusted) [90% interval]'."""
     cut = label.find(" [")
     return f"{label} ({UNADJUSTED})" if cut < 0 else f"{label[:cut]} ({UNADJUSTED}){label[cut:]}"
@@ -184,7 +184,7 @@ def fit_table(result) -> ReportTable:
         ]
         # the figures to read first; the unadjusted ones after SRMR, marked, without guide values
         srmr = rows.pop()
-        rows = robust + [srmr] + [[_unadjusted(label), value, "for reference only"] for label, value, _ in rows
+        rows = robust + [srmr] + [[unadjusted_label(label), value, "for reference only"] for label, value, _ in rows
                                   if (label != "Chi-square test" or f.df > 0) and not label.startswith("  test of close")]
     rows.append(["Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", ""])
     if not missing(f.log_likelihood):  # least-squares estimators have no likelihood
@@ -232,7 +232,7 @@ def _fit_values(result) -> list[list]:
                 *[[name.capitalize(), value, nan, nan, nan, nan] for name, value in r.pieces],
                 ["Robust CFI", r.cfi_robust, nan, nan, nan, nan], ["Robust TLI", r.tli_robust, nan, nan, nan, nan],
                 ["Robust RMSEA", r.rmsea_robust, nan, nan, *r.rmsea_robust_ci90], srmr,
-                *[[_unadjusted(row[0]), *row[1:]] for row in plain
+                *[[unadjusted_label(row[0]), *row[1:]] for row in plain
                   if (row[0] != "Chi-square" or f.df > 0) and not row[0].startswith("Test of close")]]
     rows.append(["Baseline (independence) chi-square", f.baseline_chi_square, f.baseline_df, nan, nan, nan])
     if not missing(f.log_likelihood):

@@ -73,6 +73,17 @@ def _robust_values(test) -> tuple[str, ...]:
             "Robust RMSEA", "Robust RMSEA 90% lower", "Robust RMSEA 90% upper")
 
 
+def _robust_first(labels: tuple[str, ...], plain: int) -> tuple[list[int], list[str]]:
+    """The order of a comparison column with a robust test: admissibility and parameters, the robust rows, SRMR,
+    the normal-theory rows marked unadjusted, AIC and BIC; ``plain``: how many rows precede the robust ones."""
+    srmr, df = labels.index("SRMR"), labels.index("df")
+    unadjusted = [k for k in range(2, srmr) if k != df]
+    order = [0, 1, df, *range(plain, len(labels)), srmr, *unadjusted, *range(srmr + 1, plain)]
+    marked = set(unadjusted)
+    return order, [T.unadjusted_label(labels[k]) if k in marked and not labels[k].startswith(" ") else labels[k]
+                   for k in order]
+
+
 def _comparison_cells(r, test) -> tuple[list[str], list]:
     """A model's column of the comparison table, as text and as numbers; ``test``: the robust test of the
     comparison (None without one)."""
@@ -86,7 +97,7 @@ def _comparison_cells(r, test) -> tuple[list[str], list]:
     tested = f.df > 0
     cells = [_admissible_cell(r), str(f.n_free_parameters), f"{f.chi_square:.3f}", str(f.df), p_value(f.p_value),
              unit(f.cfi), unit(f.tli), unit(f.rmsea) if tested else "", f"[{unit(low)}, {unit(high)}]" if tested else "",
-             unit(f.srmr), num(f.aic, 1), num(f.bic, 1)]
+             unit(f.srmr), _information_criterion(f.aic), _information_criterion(f.bic)]
     values = [_admissible_cell(r), f.n_free_parameters, f.chi_square, f.df, f.p_value, f.cfi, f.tli,
               f.rmsea if tested else None, low if tested else None, high if tested else None, f.srmr, f.aic, f.bic]
     if robust_rows:
@@ -101,6 +112,11 @@ def _comparison_cells(r, test) -> tuple[list[str], list]:
             values += [rb.chi_square_scaled, *(value for _, value in rb.pieces), rb.p_value_scaled, rb.cfi_robust,
                        rb.tli_robust, rb.rmsea_robust, rl, rh]
     return cells, values
+
+
+def _information_criterion(value) -> str:
+    """AIC or BIC to one decimal, or 'not defined' (least-squares and weighted fits have no likelihood)."""
+    return "not defined" if missing(value) else num(value, 1)
 
 
 def _design_lines(result) -> tuple[str, ...]:
@@ -171,9 +187,14 @@ def comparison_report(comparison) -> Report:
     test = next((r.robust.test for r in comparison.results if r.robust is not None), None)
     cells = [_comparison_cells(r, test) for r in comparison.results]
     labels = _COMPARISON_ROWS + (_robust_rows(test) if test is not None else ())
+    value_labels = _COMPARISON_VALUES + (_robust_values(test) if test is not None else ())
+    if test is not None:  # the figures to read first, the unadjusted ones after SRMR, marked (as in fit's table)
+        order, labels = _robust_first(labels, len(_COMPARISON_ROWS))
+        value_order, value_labels = _robust_first(value_labels, len(_COMPARISON_VALUES))
+        cells = [([c[0][k] for k in order], [c[1][k] for k in value_order]) for c in cells]
     rows = [[label, *[c[0][k] for c in cells]] for k, label in enumerate(labels)]
     bad = any(r.converged and not r.admissible for r in comparison.results)
-    value_columns = ["Model", *_COMPARISON_VALUES, *(_robust_values(test) if test is not None else ())]
+    value_columns = ["Model", *value_labels]
     tables = [_table("model_fit", "Fit of each model", [("", "l")] + [(name, "r") for name in comparison.names], rows,
                      flagged=(0,) if bad else (),
                      values=(value_columns, [[name, *c[1]] for name, c in zip(comparison.names, cells)]))]

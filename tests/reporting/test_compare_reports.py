@@ -96,3 +96,19 @@ def test_ordinal_comparison_names_the_adjusted_test_and_its_pieces_as_fit_does()
     # the difference test carries the same name as the fit's test, with the authors of the difference version
     test_name = comparison.tests[0].method.value
     assert test_name.startswith(alone.robust.test.label.split(" (")[0]) and "Asparouhov & Muthen 2006" in test_name
+
+
+def test_robust_figures_come_first_and_each_number_keeps_its_label(hs_data):
+    # the scaled test and robust indices first, SRMR, then the normal-theory figures marked unadjusted (as fit's
+    # table; new-user trial); the data-file values are reordered with the text, so each number stays under its name
+    result = compare([THREE, THREE + "covary x7, x8\n"], hs_data, test="satorra-bentler")
+    table = comparison_report(result).tables[0]
+    labels = [row[0] for row in table.rows]
+    assert labels[:4] == ["Admissible", "Free parameters", "df", "Scaled chi-square (Satorra-Bentler)"]
+    assert labels.index("SRMR") < labels.index("Chi-square (unadjusted)") < labels.index("AIC")
+    named = dict(zip(table.value_columns, table.values[0]))
+    first = result.results[0]
+    assert named["Scaled chi-square"] == first.robust.chi_square_scaled
+    assert named["Chi-square (unadjusted)"] == first.fit.chi_square and named["df"] == first.fit.df
+    assert named["CFI (unadjusted)"] == first.fit.cfi and named["Robust CFI"] == first.robust.cfi_robust
+    assert named["SRMR"] == first.fit.srmr and named["AIC"] == first.fit.aic
