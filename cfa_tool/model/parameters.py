@@ -482,6 +482,19 @@ def _mean_identified(spec, factor, entries, tied_across_groups, lat_ix, ordinal)
     return False
 
 
+def group_statement(spec: Spec) -> str | None:
+    """The first statement of ``spec`` that needs groups, in words ('in group north', 'noninvariant', or the
+    equalities across groups), or None when the model has none."""
+    refs = [r for r in all_refs(spec) if r.group is not None]
+    if refs:
+        return f"'in group {refs[0].group}'"
+    if spec.noninvariant:
+        return "'noninvariant'"
+    if spec.invariant:
+        return f"{', '.join(equality_words(spec.invariant))} equal across groups"
+    return None
+
+
 def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, means: bool) -> None:
     refs = [r for r in all_refs(spec) if r.group is not None]
     mean_refs = [r for r in all_refs(spec) if r.kind in ("intercept", "mean")]

@@ -619,15 +619,17 @@ def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, ref
     return groups, _no_group_notes(no_group, group) + label_notes(frame, group)
 
 
-def ordinal_estimator_option(method: str | None, ordinal_items) -> str:
+def ordinal_estimator_option(method: str | None, ordinal_items,
+                             declared_by: str = "an 'ordinal' statement or --ordinal") -> str:
     """The least-squares estimator for ordinal items (default diagonally weighted); naming one for a model
-    without ordinal items is an error, since it could not apply."""
+    without ordinal items is an error, since it could not apply.  ``declared_by``: how the command run declares
+    ordinal items (its own options only)."""
     if method is None:
         return Weighting.DIAGONAL
     method = Weighting.parse(method, "the ordinal estimator")
     if not ordinal_items:
-        raise OptionError("an estimator for ordinal items is chosen, but the model has no ordinal items (declare them "
-                          "with an 'ordinal' statement or --ordinal), so it cannot apply")
+        raise OptionError(f"an estimator for ordinal items is chosen, but the model has no ordinal items (declare them "
+                          f"with {declared_by}), so it cannot apply")
     return method
 
 

@@ -309,6 +309,17 @@ def _fitted_means(model: StructuredModel, theta: np.ndarray, value_of: dict, pay
     return means, ItemMeans.SAMPLE_MEANS
 
 
+def one_group_only(spec: Spec, what: str) -> None:
+    """A model with statements that need groups cannot be used where there are none (simulation, power): an error
+    that says so without advice about options these commands do not have."""
+    from cfa_tool.model.parameters import group_statement
+
+    statement = group_statement(spec)
+    if statement is not None:
+        raise OptionError(f"{what}, and the model has {statement}, which needs groups: remove it for this command "
+                          f"(fit, invariance and align take a group column)")
+
+
 def population_from_spec(spec: Spec, fitted=None) -> Population:
     """The population of ``spec``: its 'start' and 'fix' values with standardized defaults beside them, or,
     with ``fitted`` (a fit result, its JSON dict or the JSON file), the estimates of that earlier fit."""
@@ -317,6 +328,7 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
 
     if fitted is not None:
         return _population_from_fit(spec, fitted)
+    one_group_only(spec, "the simulation draws rows of one group")
     table = build_parameter_table(spec)
     model = StructuredModel(table)
     given = table.start.copy()
