@@ -9,6 +9,8 @@ and whose variable and value labels are kept for reports.
 
 from __future__ import annotations
 
+import unicodedata
+
 import csv
 import io
 import re
@@ -79,6 +81,7 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         names = []
         loaded = LoadedData(read_table(path, notes, names, text_columns), str(path), notes=tuple(notes),
                             row_names=names[0] if names else None)
+    loaded = _composed_names(loaded)
     if missing_codes:
         frame = loaded.frame.copy()
         for column in frame.columns:
@@ -86,6 +89,20 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
                 frame[column] = frame[column].where(~frame[column].isin(missing_codes))
         loaded = replace(loaded, frame=frame)
     return loaded
+
+
+def _composed_names(loaded: LoadedData) -> LoadedData:
+    """Column names in Unicode's composed form (NFC), as model names are read: a header written with decomposed
+    accents (as some systems save files) names the same column as the model's 'température'."""
+    def composed(name):
+        return unicodedata.normalize("NFC", name) if isinstance(name, str) else name
+
+    names = [composed(c) for c in loaded.frame.columns]
+    if names == list(loaded.frame.columns):
+        return loaded
+    return replace(loaded, frame=loaded.frame.set_axis(names, axis=1),
+                   variable_labels={composed(k): v for k, v in loaded.variable_labels.items()},
+                   value_labels={composed(k): v for k, v in loaded.value_labels.items()})
 
 
 def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list | None = None) -> pd.DataFrame:

@@ -9,6 +9,8 @@ identification) live in :mod:`cfa_tool.language.checks`.
 
 from __future__ import annotations
 
+import unicodedata
+
 import re
 from functools import lru_cache
 from pathlib import Path
@@ -126,6 +128,17 @@ def _parse_model(text: str, source: str) -> Spec:
 # ---------------------------------------------------------------- syntax errors
 
 
+def _word_at(lines: tuple[str, ...], line: int, column: int) -> str:
+    """The run of letters, digits and underscores around a 1-based position."""
+    text = lines[line - 1] if 1 <= line <= len(lines) else ""
+    start = end = min(max(column - 1, 0), len(text))
+    while start > 0 and (text[start - 1].isalnum() or text[start - 1] == "_"):
+        start -= 1
+    while end < len(text) and (text[end].isalnum() or text[end] == "_"):
+        end += 1
+    return text[start:end][:80]
+
+
 def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> ModelError:
     line = max(1, getattr(exc, "line", 1) or 1)
     column = max(1, getattr(exc, "column", 1) or 1)
@@ -139,6 +152,9 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
         message = f"unexpected character '{char}'"
         if char == "'":
             message += ' (use double quotes for quoted names and titles)'
+        if char.isalpha():  # a letter beyond A-Z: plain names are ASCII
+            word = _word_at(lines, line, column)
+            message += f'; a name with letters beyond A-Z is written in double quotes: "{printable(word)}"'
         span = _dashed_span_at(lines, line, column)
         if span is not None:
             message += f"; a range of names is written with two dots: '{span}'"
@@ -494,7 +510,7 @@ class _Builder:
         token = node.children[0]
         text = str(token)
         if node.data == "quoted_name":
-            text = text[1:-1]
+            text = unicodedata.normalize("NFC", text[1:-1])  # as data column names are read
             if not text.strip():
                 raise self.error("a quoted name cannot be empty", token)
         return Name(text, self.loc(token))

@@ -410,3 +410,19 @@ def test_a_filter_comparing_with_text_names_the_value(hs_data):
         cfa_tool.fit(THREE_FACTORS, hs_data, keep=["x1 > 1,5"])
     with pytest.raises(OptionError, match="'school' holds text"):
         cfa_tool.fit(THREE_FACTORS, hs_data, keep=["school > 3"])
+
+
+def test_a_header_with_decomposed_accents_names_the_models_column(tmp_path, hs_items):
+    # a header saved with decomposed accents ('e' + combining acute, as some systems write it) and a model that
+    # quotes the composed name: the same column (it was 'unknown variable ... did you mean' the same-looking name)
+    import unicodedata
+
+    composed = "qualit\u00e9"
+    data = hs_items[ITEMS].rename(columns={"x3": unicodedata.normalize("NFD", composed)})
+    path = tmp_path / "nfd.csv"
+    data.to_csv(path, index=False)
+    assert unicodedata.normalize("NFD", composed) in path.read_text(encoding="utf-8")
+    model = THREE_FACTORS.replace("x1, x2, x3", f'x1, x2, "{composed}"')
+    assert cfa_tool.fit(model, path).converged
+    again = cfa_tool.fit(model.replace(composed, unicodedata.normalize("NFD", composed)), path)  # either way
+    assert again.converged
