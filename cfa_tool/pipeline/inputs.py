@@ -310,8 +310,8 @@ def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> Loaded
 def with_odd_values(result, loaded: LoadedData):
     """``result`` (anything with ``problems``) with the cautions of :func:`odd_value_problems` before its own:
     the fit is not refused, since the user may know better."""
-    found = odd_value_problems(loaded)
-    return replace(result, problems=found + tuple(result.problems)) if found else result
+    found = tuple(p for p in odd_value_problems(loaded) if p not in result.problems)  # said once (scores of the
+    return replace(result, problems=found + tuple(result.problems)) if found else result  # fitted file, say)
 
 
 def analysed_odd_values(loaded: LoadedData, spec: Spec, group: str | None) -> LoadedData:

@@ -149,3 +149,18 @@ def test_the_frame_read_once_gives_the_findings_of_the_frame():
     columns = list(frame.columns)
     assert odd_values(frame, columns, None, item_values(frame, columns)) == odd_values(frame, columns) != ()
     assert item_values(frame.assign(x1=frame["x1"].astype(str)), columns) is None  # text: the frame's own path
+
+
+def test_scores_of_the_fitted_file_say_its_odd_values_once(tmp_path):
+    # the fit's caution about a -99 and the scored file's are the same when the file is the same: said once
+    import cfa_tool
+
+    data = _likert(4)
+    data.iloc[[3, 10], 0] = -99
+    path = tmp_path / "with_code.csv"
+    data.to_csv(path, index=False)
+    model = "factor f: " + ", ".join(data.columns[:3]) + "\nfactor g: " + ", ".join(data.columns[3:6]) + "\n"
+    fitted = cfa_tool.fit(model, path)
+    scores = fitted.scores(path)
+    said = [p for p in scores.fit.problems if p.kind.value == fitted.problems[0].kind.value]
+    assert fitted.problems and len(said) == 1 and said[0] == fitted.problems[0]
