@@ -154,10 +154,34 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         notes += filter_notes
     check_columns(spec, columns, loaded.source)
     check_declared_ranges(spec, frame, loaded.source)
+    frame, labelled = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)
+    if labelled:
+        notes.append(f"{loaded.source}: the codes of {', '.join(repr(c) for c in labelled)} are read as their value "
+                     f"labels (groups, clusters and filters name them so)")
     items = item_columns(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
     return spec, replace(loaded, frame=frame, read_frame=loaded.frame if keep else None,
                          row_filters=tuple(f.text for f in filters), items=items,
                          odd_values=odd_values(frame, spec.observed_names, row_numbers(frame), items.values)), notes
+
+
+def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> tuple[pd.DataFrame, list[str]]:
+    """Columns other than the model's items whose every code has a value label (SPSS, Stata), as those labels:
+    a group column of codes 1..5 labelled 'Dispatch', 'Fleet', ... gives groups named so.  Items keep their codes
+    (the answers are numbers); a column with unlabelled codes (weights, say) stays as it is."""
+    labelled = []
+    for column, labels in value_labels.items():
+        if column in items or column not in frame.columns or not labels:
+            continue
+        values = frame[column].dropna()
+        if len(values) and values.isin(list(labels)).all():
+            labelled.append(column)
+    if not labelled:
+        return frame, []
+    frame = frame.copy()
+    for column in labelled:
+        labels = value_labels[column]
+        frame[column] = frame[column].map(lambda v: labels.get(v, v) if pd.notna(v) else v)
+    return frame, labelled
 
 
 def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,

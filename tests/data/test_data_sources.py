@@ -52,6 +52,13 @@ def test_a_row_filter_by_a_value_label_of_an_spss_file(tmp_path, hs_items):
     assert any("compared with the value labels of 'school'" in w for w in result.warnings)
     by_code = cfa_tool.fit(THREE_FACTORS, path, keep=["school = 1.0"])  # a number still compares with the codes
     assert by_code.n_obs == 145
+    # groups by the labelled column are named by its labels, and the reference group can be given by its label
+    grouped = cfa_tool.fit(THREE_FACTORS, path, group="school", reference_group="Pasteur")
+    assert [g.label for g in grouped.groups] == ["Pasteur", "Grant-White"]
+    same = data.assign(school=hs_items["school"])  # the same rounded numbers, with the labels as text
+    assert grouped.fit.chi_square == pytest.approx(cfa_tool.fit(THREE_FACTORS, same, group="school",
+                                                                reference_group="Pasteur").fit.chi_square, rel=1e-6)
+    assert any("the codes of 'school' are read as their value labels" in w for w in grouped.warnings)
 
 
 def test_stata_file(tmp_path, hs_items, hs_three):
