@@ -17,7 +17,7 @@ from docx.oxml.ns import qn
 from docx.shared import Emu, Inches, Pt, RGBColor
 
 from cfa_tool.errors import printable
-from cfa_tool.reporting.column_parts import column_parts
+from cfa_tool.reporting.column_parts import column_parts, label_columns
 from cfa_tool.reporting.picture import DEFAULT_DPI, page_fit, png_converter, svg_to_png
 from cfa_tool.reporting.document import WARNINGS
 from cfa_tool.reporting.tables import ReportTable
@@ -217,7 +217,8 @@ def _add_table(document, table: ReportTable, number: int) -> None:
     size, padding = (WIDE_SIZE, WIDE_PADDING) if landscape else (BODY_SIZE, CELL_PADDING)
     wanted, least = _column_widths(table, size)
     room = _room(document)
-    parts = column_parts([w + padding for w in least], room)
+    padded = [w + padding for w in least]
+    parts = column_parts(padded, room, label_columns(table.align, padded, room))
     for k, columns in enumerate(parts):
         _caption(document, f"Table {number}" + (" (continued)" if k else ""), table.title)
         widths = _fitted([wanted[j] + padding for j in columns], [least[j] + padding for j in columns], room)

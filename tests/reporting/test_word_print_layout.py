@@ -14,7 +14,7 @@ from docx.shared import Emu, Pt
 
 import cfa_tool
 from cfa_tool.reporting import tables as T
-from cfa_tool.reporting.column_parts import column_parts
+from cfa_tool.reporting.column_parts import column_parts, label_columns
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.docx_report import WIDE_SIZE, report_docx, typeset
 from cfa_tool.reporting.fit_document import fit_report
@@ -138,6 +138,25 @@ def test_column_parts_is_the_terminals_rule():
     assert column_parts([5, 3, 3], 20) == [[0, 1, 2]]
     assert column_parts([5, 3, 3, 3], 11) == [[0, 1, 2], [0, 3]]
     assert column_parts([5, 9, 9], 10) == [[0, 1], [0, 2]]  # a column wider than the room still gets a part
+    # two label columns (factor, group) repeat in every part, so a number never loses its row's names (new-user trial)
+    assert column_parts([6, 6, 4, 4, 4], 19, labels=2) == [[0, 1, 2], [0, 1, 3], [0, 1, 4]]
+    assert label_columns(("l", "l", "r", "r"), [6, 6, 4, 4], 40) == 2
+    assert label_columns(("l", "l", "r", "r"), [15, 15, 4, 4], 40) == 1  # labels may not take more than half the room
+    assert label_columns(("l", "r", "l", "r"), [6, 4, 6, 4], 40) == 1
+
+
+def test_a_split_table_repeats_its_label_columns_in_the_terminal():
+    from cfa_tool.reporting.tables import ReportTable
+    from cfa_tool.reporting.terminal import rich_table, SafeConsole
+    import io
+
+    rows = tuple((f"factor{k}", f"group{k}", *(f"{v:.3f}" for v in range(6))) for k in range(3))
+    table = ReportTable("t", "Differences", ("Factor", "Group", *(f"Column {k}" for k in range(6))),
+                        ("l", "l", *("r" * 6)), rows)
+    out = io.StringIO()
+    SafeConsole(file=out, width=60, no_color=True).print(rich_table(table))
+    parts = out.getvalue().split("continued")
+    assert len(parts) > 1 and all("group2" in part for part in parts)
 
 
 def test_no_ordinal_note_under_a_continuous_fit_in_any_format(rider, word):
