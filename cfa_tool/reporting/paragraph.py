@@ -193,6 +193,7 @@ def _departures(d) -> str:
         sentences.append(f"The {'factors' if many else 'factor'} {_list(list(d.method_factors))} "
                          f"{'stand' if many else 'stands'} for a way of answering, not a trait: "
                          f"{'they get' if many else 'it gets'} no reliability or discriminant-validity coefficients.")
+
     if d.uncorrelated:
         pairs = _list([f"{a} and {b}" for a, b in d.uncorrelated])
         sentences.append(f"The covariance{'s' if len(d.uncorrelated) > 1 else ''} of {pairs} "
@@ -268,6 +269,13 @@ def _fit_sentence(result) -> str:
             f"TLI = {index_text(f.tli)}, RMSEA = {index_text(f.rmsea)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}.")
 
 
+def _method_items(result, factor: str) -> list[str]:
+    """The items a method factor loads on, in the model's order."""
+    return [r.variables[1] for r in result.estimates
+            if r.kind == "loading" and r.variables[0] == factor and r.variables[1] in result.observed
+            and (r.group is None or r.group == result.groups[0].label)]
+
+
 def _weak_factor_sentence(result, subject: str) -> str:
     """A sentence on the method factors of ``result`` that carry next to nothing ('' when there are none)."""
     weak = [p.phrase() for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
@@ -318,7 +326,9 @@ def methods_paragraph(result) -> str:
     if weak:
         parts.append(weak)
     parts.append(_fit_sentence(result))
-    loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed]
+    methods = set(getattr(result.description, "method_factors", ()) or ())
+    loadings = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed
+                and r.variables[0] not in methods]
     second = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed]
     blocks = getattr(result, "exploratory", ())
     if loadings:
@@ -331,6 +341,13 @@ def methods_paragraph(result) -> str:
         else:
             parts.append(f"Standardized loadings {which}ranged from {unit(min(loadings), 2)} to "
                          f"{unit(max(loadings), 2)}.")
+    for factor in sorted(methods):  # apart from the traits' loadings, which they would otherwise widen
+        items = _method_items(result, factor)
+        on_factor = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[0] == factor
+                     and r.variables[1] in result.observed]
+        if items:
+            parts.append(f"The method factor {factor} was indicated by {_list(items)}; its standardized loadings "
+                         f"{_range(on_factor)}.")
     if second:
         what = "The standardized loadings of the factors on the higher-order factor"
         parts.append(f"{what} {_range(second)}.")
