@@ -65,3 +65,11 @@ def short(value) -> str:
         return ""
     text = f"{value:g}"
     return text[1:] if text.startswith("0.") else ("-" + text[2:] if text.startswith("-0.") else text)
+
+
+def word_list(words) -> str:
+    """Words joined as a sentence lists them: 'a', 'a and b', 'a, b, and c'."""
+    words = list(words)
+    if len(words) <= 2:
+        return " and ".join(words)
+    return ", ".join(words[:-1]) + ", and " + words[-1]

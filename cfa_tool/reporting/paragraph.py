@@ -18,6 +18,7 @@ from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.numbers import index_text, p_phrase, signed, unit
+from cfa_tool.reporting.numbers import word_list as _list
 
 CHI = "\u03c7\u00b2"
 WORDS = {1: "one", 2: "two", 3: "three", 4: "four", 5: "five", 6: "six", 7: "seven", 8: "eight", 9: "nine", 10: "ten"}
@@ -29,13 +30,6 @@ def _count(n: int, noun: str, plural: str | None = None) -> str:
 
 def _p(p: float) -> str:
     return f"p {p_phrase(p)}"
-
-
-def _list(words: list[str]) -> str:
-    words = list(words)
-    if len(words) <= 2:
-        return " and ".join(words)
-    return ", ".join(words[:-1]) + ", and " + words[-1]
 
 
 def _pair(pair) -> str:

@@ -10,7 +10,7 @@ import numpy as np
 from cfa_tool.assessment.reliability import Keying
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST
-from cfa_tool.reporting.numbers import index_text, missing, num, p_phrase, p_value, unit
+from cfa_tool.reporting.numbers import index_text, missing, num, p_phrase, p_value, unit, word_list
 from cfa_tool.reporting.remedies import Remedy
 
 GUIDE_NOTE = (
@@ -294,8 +294,13 @@ def _factor_block(result, group: int, k: int, factor: str, rows: list, residual:
     scale = _scale_phrase(result, factor)
     title = f"Factor {factor}" + (f" ({scale})" if scale else "")
     suffix = "" if label is None else f"_{group}"
-    return _table(f"factor_{k + 1}{suffix}", title, columns, body, flagged=tuple(i for i, m in enumerate(problems) if m),
-                  values=(value_columns, numbers))
+    shared = sorted({r.variables[1] for r in rows} & {
+        e.variables[1] for e in result.estimates if e.kind == "loading" and e.variables[0] != factor
+        and (e.group is None or e.group == label)}, key=result.observed.index) if not higher else []
+    note = (f"R² and the error variance of {word_list(shared)} are each item's whole: the share of its variance all "
+            f"its factors explain together, not {factor}'s alone." if shared else None)
+    return _table(f"factor_{k + 1}{suffix}", title, columns, body, note,
+                  flagged=tuple(i for i, m in enumerate(problems) if m), values=(value_columns, numbers))
 
 
 def implied_factor_correlation(result, group: int, first: str, second: str) -> float | None:

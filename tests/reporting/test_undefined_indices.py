@@ -37,3 +37,13 @@ def test_a_robust_fit_shows_its_robust_figures_first_and_marks_the_unadjusted_on
     assert [v[0] for v in table.values][:1] == ["Scaled chi-square (Satorra-Bentler)"]
     plain = [row[0] for row in T.fit_table(cfa_tool.fit(THREE_FACTORS, hs_data)).rows]
     assert plain[:3] == ["Chi-square test", "CFI", "TLI"] and not any("unadjusted" in label for label in plain)
+
+
+def test_a_factor_table_says_when_r_squared_is_the_items_whole(hs_data):
+    # x9 loads on visual and speed: its R² (all its factors together) is not one factor's share (new-user trial)
+    result = cfa_tool.fit("factor visual: x1, x2, x3, x9\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n",
+                          hs_data)
+    tables = {t.title.split(" (")[0]: t for t in T.estimate_tables(result)}
+    assert "R² and the error variance of x9 are each item's whole" in tables["Factor visual"].note
+    assert "not speed's alone" in tables["Factor speed"].note
+    assert tables["Factor textual"].note is None
