@@ -309,8 +309,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                        ordinal_estimator, design), ids_by_row_number(ids, frame))
     result = with_odd_values(result, loaded)
-    if missing_codes_option(missing_codes):  # kept with the fit: scores of other data with it read them so too
-        result = replace(result, data=replace(result.data, missing_codes=missing_codes_option(missing_codes)))
+    codes = missing_codes_option(missing_codes)
+    if codes:  # kept with the fit: scores of other data with it read them so too
+        result = replace(result, data=replace(result.data, missing_codes=codes))
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 

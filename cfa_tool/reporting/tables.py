@@ -704,12 +704,12 @@ def category_table(result, group: int = 0) -> ReportTable | None:
         values.append([name] + [c for _, c in cats] + [None] * (width - len(cats)))
     label = result.groups[group].label
     where = f" in group {label}" if label is not None else ""
+    weights = _weights_column(result)
     return _table(f"categories_{group}", f"Answers per category{where} (rows analysed)",
                   [("Item", "l")] + [(str(k + 1), "r") for k in range(width)], rows,
                   "Each cell: the answer value, the rows giving it and their share. Categories nobody chose do not "
-                  "appear (their threshold cannot be estimated)." + ("" if _weights_column(result) is None else
-                  f" Rows are counted once each, unweighted; the thresholds use the shares weighted by "
-                  f"{_weights_column(result)}."),
+                  "appear (their threshold cannot be estimated)." + ("" if weights is None else
+                  f" Rows are counted once each, unweighted; the thresholds use the shares weighted by {weights}."),
                   values=(["Item"] + [f"Category {k + 1} rows" for k in range(width)], values))
 
 

@@ -256,13 +256,13 @@ def _step_cells(t, delta_srmr) -> tuple[list[str], list]:
             [t.chi_square_difference, t.df_difference, t.p_value, t.delta_cfi, t.delta_rmsea, delta_srmr])
 
 
-CONFIGURAL_NOTE = ("The configural model holds when it fits by the guide values (CFI >= .95, RMSEA <= .06, SRMR <= .08; Hu & "
-                   "Bentler 1999). Change-in-fit guides are common practice: CFI falling by no more than .010 (Cheung & "
-                   "Rensvold 2002), RMSEA rising by less than .015, SRMR by less than .030 for loadings and .010 after "
-                   "(Chen 2007). All guides are conventions, not laws.")
-CONFIGURAL_ORDINAL_NOTE = ("The configural model holds when it fits by the guide values (CFI >= .95, RMSEA <= .06, "
-                           "SRMR <= .08; Hu & Bentler 1999; conventions, not laws). Changes in fit indices between "
-                           "steps are not shown with ordinal items (see above).")
+CONFIGURAL_GUIDE = ("The configural model holds when it fits by the guide values (CFI >= .95, RMSEA <= .06, SRMR <= .08; "
+                    "Hu & Bentler 1999).")
+CONFIGURAL_NOTE = (f"{CONFIGURAL_GUIDE} Change-in-fit guides are common practice: CFI falling by no more than .010 "
+                   "(Cheung & Rensvold 2002), RMSEA rising by less than .015, SRMR by less than .030 for loadings and "
+                   ".010 after (Chen 2007). All guides are conventions, not laws.")
+CONFIGURAL_ORDINAL_NOTE = (f"{CONFIGURAL_GUIDE} Changes in fit indices between steps are not shown with ordinal items "
+                           "(see above). The guides are conventions, not laws.")
 ADJUSTED_NOTE = (f"Ordinal items: chi-square, CFI and RMSEA come from the {FitTest.SCALE_SHIFTED.label} statistic, and "
                  f"each difference test is the {DifferenceMethod.SCALE_SHIFTED}. The adjusted statistic's "
                  f"{FitTest.SCALE_SHIFTED.correction} are estimated anew for each model, so it can fall when constraints "
@@ -430,7 +430,7 @@ def replication_report(replications) -> Report:
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
-    split = tuple(dict.fromkeys(rep.split_rows for rep in reps if rep.split_rows))
+    split = tuple(dict.fromkeys(_split_sentence(rep.split) for rep in reps if rep.split is not None))
     return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), split, tuple(tables), tuple(notes),
                   (GUIDE_NOTE, HIGH_STAKES_NOTE))
 
@@ -443,6 +443,16 @@ ORDINAL_BOOTSTRAP = ("Ordinal items: each resample gets its own thresholds and p
                      "by {estimator}. Only the parameters are bootstrapped, by percentile intervals: BCa's acceleration "
                      "and the Bollen-Stine bootstrap of the test are built for continuous rows and have no counterpart "
                      "for ordinal answers, so the test of fit remains the fit's adjusted one.")
+
+
+def _split_sentence(rows) -> str:
+    """Which rows of the file random halves were drawn from (workflows.replication.SplitRows)."""
+    if rows.split >= rows.in_file:
+        return f"The {rows.split} rows of the file were split at random into two halves."
+    why = ("they miss some answers, and the halves hold complete rows only" if rows.complete_only else
+           "they answer none of the model's items")
+    return (f"{rows.split} of the {rows.in_file} rows were split at random into two halves; the other "
+            f"{rows.in_file - rows.split} were left out before the split ({why}).")
 
 
 def _left_out(result) -> str:

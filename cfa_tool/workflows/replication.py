@@ -66,8 +66,8 @@ class Replication(Presentable):
     adjusted: bool = False
     #: values in the item columns of either data set that look like no answers (assessment.admissibility.Problem)
     data_problems: tuple = ()
-    #: random halves of one file: which rows were split (rows with missing answers left out before the split)
-    split_rows: str = ""
+    #: random halves of one file: which of its rows were split (None for two data sets)
+    split: "SplitRows | None" = None
 
     def to_dict(self) -> dict:
         loose = self.loose.fit.to_dict() if self.loose.fit is not None else None
@@ -77,7 +77,7 @@ class Replication(Presentable):
 
         return clean({
             "data_problems": [p.to_dict() for p in self.data_problems],
-            "split_rows": self.split_rows or None,
+            "split": self.split.to_dict() if self.split is not None else None,
             "calibration": {"data": self.calibration, "n_obs": self.calibration_result.n_obs,
                             "admissible": self.calibration_result.admissible,
                             "problems": [p.to_dict() for p in self.calibration_result.problems],
@@ -257,19 +257,22 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     with odd_values_named(screen):
         pair = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)
     problems = odd_value_problems(screen)
-    return tuple(replace(rep, data_problems=problems, split_rows=_split_rows(frame, spec, rep)) for rep in pair)
+    split = pair[0].calibration_result.n_obs + pair[0].loose.n_obs
+    rows = SplitRows(split, len(frame), split < len(frame.dropna(subset=list(spec.observed_names), how="all")))
+    return tuple(replace(rep, data_problems=problems, split=rows) for rep in pair)
 
 
-def _split_rows(frame: pd.DataFrame, spec: Spec, rep: Replication) -> str:
-    """Which rows of the file the halves were drawn from, in a sentence for the report."""
-    split = rep.calibration_result.n_obs + rep.loose.n_obs
-    if split >= len(frame):
-        return f"The {split} rows of the file were split at random into two halves."
-    answering = len(frame.dropna(subset=list(spec.observed_names), how="all"))
-    why = ("they miss some answers, and the halves hold complete rows only" if split < answering else
-           "they answer none of the model's items")
-    return (f"{split} of the {len(frame)} rows were split at random into two halves; the other {len(frame) - split} "
-            f"were left out before the split ({why}).")
+@dataclass(frozen=True)
+class SplitRows:
+    """Which rows of one file were split into random halves: ``split`` of ``in_file``; ``complete_only``: rows with
+    missing answers were left out before the split (the halves hold complete rows)."""
+
+    split: int
+    in_file: int
+    complete_only: bool
+
+    def to_dict(self) -> dict:
+        return {"rows_split": self.split, "rows_in_file": self.in_file, "complete_rows_only": self.complete_only}
 
 
 def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal_items, method, missing,
