@@ -79,10 +79,11 @@ def _model_directions(likelihood: MissingDataLikelihood, theta: np.ndarray, g: i
     return np.hstack([d_mu, d_sigma[:, I, J]]).T  # (k, q)
 
 
-def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray, saturated, df: int, base_df: int,
+def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray, saturated, df: int, base_df: int | None,
                    ) -> tuple[np.ndarray, float, float]:
-    """(Huber-White covariance of theta, tr term of the model, tr term of the baseline) summed over groups;
-    the scaling factors follow as (sat - model) / (2 df)."""
+    """(Huber-White covariance of theta, scaling factor of the model, scaling factor of the baseline), the
+    factors (sat - model) / (2 df) from the trace terms summed over groups; ``base_df`` None: the baseline's
+    factor is not wanted (NaN)."""
     q = len(theta)
     bread_total = np.zeros((q, q))
     meat_total = np.zeros((q, q))
@@ -101,6 +102,8 @@ def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray, saturat
         mu_s, sigma_s = saturated[g]
         s_scores, s_parts = moment_scores(data, mu_s, sigma_s)
         trace_sat += _trace_term(s_scores, s_parts, None, design)[0]
+        if base_df is None:
+            continue
         mu_b, var_b = weighted_available_moments(data.rows, data.row_weights)
         b_scores, b_parts = moment_scores(data, mu_b, np.diag(var_b))
         p = likelihood.p
@@ -112,4 +115,4 @@ def robust_missing(likelihood: MissingDataLikelihood, theta: np.ndarray, saturat
     cov = inv @ meat_total @ inv / likelihood.n_total
     trace_model = float(np.sum(inv * meat_total.T))
     return cov, (trace_sat - trace_model) / (2.0 * df) if df > 0 else float("nan"), \
-        (trace_sat - trace_base) / (2.0 * base_df)
+        (trace_sat - trace_base) / (2.0 * base_df) if base_df is not None else float("nan")

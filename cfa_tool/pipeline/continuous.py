@@ -124,14 +124,10 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     labels = tuple(label for label, _ in groups) if multi else None
     table, model = model_structure(spec, labels, fiml)
     moments = [ordered_moments(m, table.observed) for _, m in groups]
-    if fiml:
-        patterns = [pattern_data(gm.rows, gm.design.weights if gm.design is not None else None) for gm in moments]
-        saturated = [(gm.mean, gm.covariance) for gm in moments]
-        summaries = [GroupMoments(gm.covariance, gm.mean, gm.n_obs, design=gm.design) for gm in moments]
 
     def likelihood_of(model: StructuredModel) -> NormalLikelihood | MissingDataLikelihood:
         if fiml:
-            return MissingDataLikelihood(model, patterns, saturated, summaries)
+            return full_information_likelihood(model, moments)
         return NormalLikelihood(model, moments)
 
     def pooled_moments() -> tuple[np.ndarray, np.ndarray]:
@@ -156,6 +152,15 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     opt = found.result
     message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations)
     return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, message)
+
+
+def full_information_likelihood(model: StructuredModel, moments: list[GroupMoments]) -> MissingDataLikelihood:
+    """The full-information discrepancy of ``model`` for each group's rows, ``moments`` holding the rows and
+    their EM (saturated) means and covariances."""
+    patterns = [pattern_data(gm.rows, gm.design.weights if gm.design is not None else None) for gm in moments]
+    saturated = [(gm.mean, gm.covariance) for gm in moments]
+    summaries = [GroupMoments(gm.covariance, gm.mean, gm.n_obs, design=gm.design) for gm in moments]
+    return MissingDataLikelihood(model, patterns, saturated, summaries)
 
 
 @lru_cache(maxsize=16)

@@ -20,13 +20,12 @@ from cfa_tool.data.sample_design import check_design, design_columns, design_sum
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import OptionError, estimation_of
 from cfa_tool.estimation.ml import NormalLikelihood
-from cfa_tool.pipeline.continuous import fit_moments, ordered_moments
-from cfa_tool.inference.robust import robust_parts
+from cfa_tool.pipeline.continuous import fit_moments, full_information_likelihood, model_structure, ordered_moments
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.nesting import (DifferenceTest, boundary_of, difference_test, is_nested,
-                                       scaled_difference_tests)
+                                       scaled_difference_tests, scaling_at_restricted)
 from cfa_tool.views import Presentable
 
 
@@ -200,26 +199,28 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
 
 def _pairwise_tests(specs, names, results, data_groups) -> tuple[list[DifferenceTest], list[NotNested]]:
     def test_pair(a: int, b: int) -> tuple[list[DifferenceTest], str]:
-        nested, reason, m10 = is_nested(results[a], specs[b], results[b])
+        nested, reason, _ = is_nested(results[a], specs[b], results[b])
         if not nested:
             return [], reason
         tests = [difference_test(results[a], results[b], names[a], names[b])]
         if results[a].robust is not None and results[b].robust is not None:
-            if results[b].method.full_information:
-                tests.extend(scaled_difference_tests(results[a], results[b], names[a], names[b], None,
-                                                     FULL_INFORMATION_SCALING))
-            else:
-                c10 = scaling_at(m10, data_groups[b], results[b].fit.df)
-                tests.extend(scaled_difference_tests(results[a], results[b], names[a], names[b], c10))
+            general = results[b]
+            labels = tuple(label for label, _ in data_groups[b]) if general.multigroup else None
+            fiml = general.method.full_information
+            table, model = model_structure(specs[b], labels, fiml)
+            moments = [ordered_moments(m, table.observed) for _, m in data_groups[b]]
+            likelihood = full_information_likelihood(model, moments) if fiml else NormalLikelihood(model, moments)
+            c10 = scaling_at_restricted(results[a], table, model, likelihood, general.theta, general.fit.df)
+            tests.extend(scaled_difference_tests(results[a], general, names[a], names[b], c10,
+                                                 NO_M10 if c10 is None and general.fit.df > 0 else ""))
         return tests, ""
 
     return _each_pair(names, results, test_pair, specs, likelihood=True)
 
 
-#: why the strictly positive scaled difference is not given for full-information fits
-FULL_INFORMATION_SCALING = ("its scaling factor of the general model at the restricted model's estimates is not yet "
-                            "computed for full-information fits; when the 2001 version is not positive, compare the "
-                            "models on the complete rows (--incomplete-rows listwise)")
+#: why the strictly positive scaled difference is missing for a nested pair
+NO_M10 = ("the general model could not be fitted to the restricted model's implied moments, so its scaling factor "
+          "there is not defined")
 
 
 def _each_pair(names, results, test_pair, specs, likelihood: bool) -> tuple[list[DifferenceTest], list[NotNested]]:
@@ -268,14 +269,6 @@ def _different_variables(first: Spec, second: Spec, first_name: str, second_name
         parts.append(f"{listed(b - a)} only in {second_name}")
     return (f"the models use different variables ({'; '.join(parts)}), so they describe different data: no test, fit "
             f"index difference, AIC or BIC compares them")
-
-
-def scaling_at(m10, groups, df: int) -> float | None:
-    """The general model's Satorra-Bentler scaling factor at the restricted model's estimates (M10)."""
-    if df <= 0:
-        return None
-    likelihood = NormalLikelihood(m10.model, [ordered_moments(m, m10.table.observed) for _, m in groups])
-    return robust_parts(m10.model, m10.theta, likelihood)[1] / df
 
 
 def _df(result: FitResult) -> float:

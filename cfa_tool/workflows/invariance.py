@@ -28,7 +28,7 @@ from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.workflows.nesting import DifferenceTest, difference_test, scaled_difference_tests
+from cfa_tool.workflows.nesting import DifferenceTest, difference_test, scaled_difference_tests, scaling_at_restricted
 from cfa_tool.views import Presentable
 from cfa_tool.method import DecisionRule  # (declared with the other choices; imported from here too)
 
@@ -469,13 +469,20 @@ class NormalLadder:
         return with_design(result, self.design) if self.design is not None else result
 
     def difference(self, est, result, previous, level, previous_level) -> DifferenceTest:
-        """The scaled difference (Satorra & Bentler 2001) when the fits carry a robust test, as the report says;
-        the likelihood-ratio difference otherwise (or when the scaled one's correction is not positive)."""
-        general = previous[1]
-        if result.robust is not None and general.robust is not None:
-            scaled = scaled_difference_tests(result, general, level, previous_level, None)[0]
-            if not scaled.not_computed:
-                return scaled
+        """The scaled difference (Satorra & Bentler 2001) when the fits carry a robust test, as the report says,
+        or its strictly positive version (Satorra & Bentler 2010) when the 2001 correction is not positive; the
+        likelihood-ratio difference without a robust test (or when neither scaled version can be computed)."""
+        general_est, general = previous
+        if result.robust is None or general.robust is None:
+            return difference_test(result, general, level, previous_level)
+        scaled = scaled_difference_tests(result, general, level, previous_level, None)[0]
+        if not scaled.not_computed:
+            return scaled
+        c10 = scaling_at_restricted(result, general_est.table, general_est.model, general_est.likelihood,
+                                    general_est.theta, general.fit.df)
+        positive = scaled_difference_tests(result, general, level, previous_level, c10)[-1] if c10 is not None else None
+        if positive is not None and not positive.not_computed:
+            return positive
         return difference_test(result, general, level, previous_level)
 
     def constraint_tests(self, est, kinds):

@@ -209,12 +209,40 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
                                       method, delta_cfi, delta_rmsea))
         else:
             out.append(DifferenceTest(restricted_name, general_name, float("nan"), ddf, float("nan"), method, delta_cfi,
-                                      delta_rmsea, f"its scaling correction is not positive ({cd:.3f}), which can happen "
-                                      f"with this version in small samples; " + (
-                                          "read the strictly positive version" if not without_positive else
-                                          "compare the models on the complete rows (--incomplete-rows listwise), "
-                                          "where the strictly positive version is computed")))
+                                      delta_rmsea, f"its scaling correction is not positive ({cd:.3f}), " + (
+                                          "which should not happen with this version: check that the models are "
+                                          "nested" if method is DifferenceMethod.SATORRA_BENTLER_2010 else
+                                          "which can happen with this version in small samples; " + (
+                                              "read the strictly positive version" if general_scaling_at_restricted
+                                              is not None else "the strictly positive version is not available "
+                                                               "either"))))
     return out
+
+
+def scaling_at_restricted(restricted: FitResult, table, model, likelihood, start, df: int) -> float | None:
+    """The general model's scaling factor at the restricted model's estimates, for the strictly positive scaled
+    difference (Satorra & Bentler 2010): the general model (``table``, ``model``) is fitted to the restricted
+    model's implied moments, which it reproduces when the two are nested (M10), and its scaling factor is computed
+    there on the general fit's own ``likelihood`` (its rows, design and missing-data patterns): tr(U Gamma) / df
+    for complete rows (Satorra & Bentler 1994), the Yuan-Bentler (2000) factor for rows with gaps.  ``start``: the
+    general model's estimates.  None when the general model has no degrees of freedom or M10 does not reproduce
+    the restricted model's moments."""
+    from cfa_tool.estimation.ml import NormalLikelihood
+    from cfa_tool.estimation.strategy import search
+    from cfa_tool.inference.robust import robust_parts
+    from cfa_tool.inference.robust_missing import robust_missing
+    from cfa_tool.pipeline.continuous import ordered_moments
+
+    if df <= 0:
+        return None
+    implied = NormalLikelihood(model, [ordered_moments(m, table.observed) for _, m in implied_moments(restricted)])
+    found = search(implied, table, start, 500).result
+    if not found.converged or found.value > NESTING_TOLERANCE:
+        return None
+    if likelihood.complete_data:
+        return robust_parts(model, found.theta, likelihood)[1] / df
+    saturated = [(gm.mean, gm.covariance) for gm in likelihood.groups]
+    return robust_missing(likelihood, found.theta, saturated, df, None)[1]
 
 
 def implied_moments(result: FitResult) -> list[tuple[str | None, SampleMoments]]:

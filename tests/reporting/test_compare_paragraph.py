@@ -71,7 +71,9 @@ def test_full_information_comparisons_say_so(data):
     assert "every answer of every row was used, including rows with missing answers" in text
     assert "full-information maximum likelihood with the Yuan-Bentler scaled test" in text
     assert "missing at random (Little & Rubin, 2002)" in text
-    assert "(Satorra & Bentler, 2010) was not computed: " in text and "--incomplete-rows" not in text
+    assert ("compared by the strictly positive scaled chi-square difference test (Satorra & Bentler, 2010) of the "
+            "Yuan-Bentler statistics" in text)
+    assert "not computed" not in text and "--incomplete-rows" not in text
 
 
 def test_ordinal_comparisons_name_the_adjusted_difference(data):

@@ -39,3 +39,31 @@ def test_listwise_only_when_asked(holes):
     assert ladder.steps[0].result.n_obs == len(complete)
     grouped = cfa_tool.fit(THREE_FACTORS, complete, group="school")
     assert ladder.steps[0].result.fit.chi_square == pytest.approx(grouped.fit.chi_square, rel=1e-6)
+
+
+def test_a_step_whose_2001_correction_is_not_positive_reads_the_strictly_positive_version(holes, monkeypatch):
+    # Satorra & Bentler (2010): the 2001 scaled difference can have a correction <= 0 in small samples; the step
+    # then reads the strictly positive version, not the unscaled likelihood-ratio difference.  The 2001 factor is
+    # forced negative here; the 2010 figure must be the one compare gives for the same pair of models (whose
+    # full-information factor is checked against a hand computation in test_compare_and_replicate.py)
+    import dataclasses
+
+    from cfa_tool.workflows import invariance as ladder_module
+    from cfa_tool.workflows.compare import compare
+
+    original = ladder_module.scaled_difference_tests
+
+    def negative_2001(restricted, general, restricted_name, general_name, c10, why=""):
+        if c10 is None:
+            general = dataclasses.replace(general, robust=dataclasses.replace(general.robust, scaling_factor=50.0))
+        return original(restricted, general, restricted_name, general_name, c10, why)
+
+    monkeypatch.setattr(ladder_module, "scaled_difference_tests", negative_2001)
+    ladder = invariance(THREE_FACTORS, holes, "school", test="robust")
+    metric = ladder.steps[1].versus_previous
+    assert metric.method.value == "Satorra-Bentler 2010 strictly positive scaled difference"
+    monkeypatch.undo()
+    pair = compare([THREE_FACTORS + "invariance metric\n", THREE_FACTORS], holes, group="school", test="robust")
+    (expected,) = [t for t in pair.tests if t.method is metric.method]
+    assert metric.chi_square_difference == pytest.approx(expected.chi_square_difference, rel=1e-8)
+    assert metric.df_difference == expected.df_difference == 6
