@@ -10,7 +10,7 @@ from cfa_tool.method import ADJUSTED_TEST, DifferenceMethod, FitTest, MissingDat
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import comparison_paragraph
-from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit
+from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit, word_list
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
@@ -269,6 +269,22 @@ ADJUSTED_NOTE = (f"Ordinal items: chi-square, CFI and RMSEA come from the {FitTe
                  f"are added: compare steps by the difference tests, not by the statistics or indices of the levels.")
 
 
+def _other_differences(steps) -> str:
+    """The steps of a robust ladder whose difference is not the 2001 scaled one, and why (for the scaled note)."""
+    def levels(method) -> list[str]:
+        return [s.level for s in steps if s.versus_previous is not None and s.versus_previous.method is method]
+
+    out = ""
+    positive, plain = levels(DifferenceMethod.SATORRA_BENTLER_2010), levels(DifferenceMethod.LIKELIHOOD_RATIO)
+    if positive:
+        out += (f"; at the {word_list(positive)} step{'s' if len(positive) > 1 else ''} its correction was not "
+                f"positive, so the strictly positive version (Satorra & Bentler 2010) is given")
+    if plain:
+        out += (f"; at the {word_list(plain)} step{'s' if len(plain) > 1 else ''} neither scaled version could be "
+                f"computed, so the unscaled likelihood-ratio difference is given")
+    return out
+
+
 def invariance_report(result) -> Report:
     # two narrow tables (each level's own fit; each step against the one before) read in 80 columns;
     # a partially invariant step shows first with every equality, then with the freed ones
@@ -324,7 +340,8 @@ def invariance_report(result) -> Report:
     ]
     tests = sorted({step.result.robust.test.label for step in result.steps if step.result.robust is not None})
     scaled_note = (f"Chi-square, CFI and RMSEA of each level are the scaled statistic and robust indices "
-                   f"({', '.join(tests)}), and each difference test is the scaled difference of those statistics.")
+                   f"({', '.join(tests)}), and each difference test is the scaled difference of those statistics "
+                   f"(Satorra & Bentler 2001){_other_differences(result.steps)}.")
     notes = ([ADJUSTED_NOTE if ordinal else scaled_note] if adjusted else []) + [
         CONFIGURAL_ORDINAL_NOTE if ordinal else CONFIGURAL_NOTE]
     if result.freed:
