@@ -17,7 +17,7 @@ from cfa_tool.method import DifferenceMethod, Information, FitTest, Items, Missi
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
-from cfa_tool.reporting.numbers import index_text, p_phrase, signed, unit
+from cfa_tool.reporting.numbers import index_text, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
 
 CHI = "\u03c7\u00b2"
@@ -473,4 +473,91 @@ def comparison_paragraph(comparison) -> str:
     if pairs:
         parts.append("Changes in CFI and RMSEA were read against conventional guides (Cheung & Rensvold, 2002; Chen, "
                      "2007), which are conventions rather than tests.")
+    return " ".join(parts)
+
+
+#: what each invariance level adds, in a paragraph's words (the class names of workflows.invariance's ladders)
+_HELD_EQUAL = {"thresholds": "thresholds", "loadings": "loadings", "intercepts": "intercepts",
+               "residuals": "error variances and covariances"}
+
+
+#: a level's name before 'invariance' in a sentence
+_LEVEL_WORDS = {"thresholds": "threshold"}
+
+
+def _step_figures(step) -> str:
+    t = step.versus_previous
+    if t is None or t.not_computed:
+        return "no difference statistic"
+    text = f"{CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}"
+    if not step.result.method.ordinal:  # the adjusted indices of ordinal fits are not compared between models
+        text += f", \u0394CFI = {signed(t.delta_cfi)}, \u0394RMSEA = {signed(t.delta_rmsea)}"
+        if step.delta_srmr is not None:
+            text += f", \u0394SRMR = {signed(step.delta_srmr)}"
+    return text
+
+
+def invariance_paragraph(result, levels) -> str:
+    """The methods-and-results paragraph of an invariance ladder: the groups and rows, exactly the models of the
+    ladder (what each level holds equal, ``levels`` being the ladder's (level, classes held equal, ...) rows), the
+    estimator, how each step was judged (the difference test with its authors and the rule), each step's result
+    with what a partial-invariance search freed, and the latent mean differences of the scalar model."""
+    steps = result.steps
+    first = steps[0].result
+    sizes = "; ".join(f"{g.label}, n = {g.data.n_obs}" for g in first.groups)
+    held = {level: classes for level, classes, *_ in levels}
+    ladder = []
+    for step in steps:
+        classes = held.get(step.level, ())
+        ladder.append(step.level if not classes else
+                      f"{step.level} ({_list([_HELD_EQUAL.get(c, c) for c in classes])} equal across groups)")
+    parts = [f"Measurement invariance across {result.group_column} ({_count(len(result.groups), 'group')}: {sizes}) "
+             f"was tested with a sequence of models, each adding equality constraints to the one before: "
+             f"{_list(ladder)}"
+             + ("; thresholds before loadings as Wu & Estabrook (2016) set out" if first.method.ordinal else "") + "."]
+    d = first.description
+    if d is not None:
+        parts.append(f"The configural model had {_structure(first, d).rstrip(',')}, with the same pattern in every "
+                     f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
+                     f"{result.groups[0]} were fixed at zero.")
+    design = getattr(first, "design", None)
+    if design is not None:
+        parts.append(design.sentence(first.method.full_information, first.method.ordinal))
+    methods = sorted({s.versus_previous.method for s in steps[1:] if s.versus_previous is not None
+                      and not s.versus_previous.not_computed}, key=_PREFERRED.index)
+    rule = result.rule.description.replace("alpha", unit(result.alpha, 2)).replace(">=", "\u2265")
+    parts.append("The configural model was judged by its own fit against conventional guide values (CFI \u2265 .95, "
+                 "RMSEA \u2264 .06, SRMR \u2264 .08; Hu & Bentler, 1999); each later model by "
+                 f"{rule}" + (f", the difference test being {_list([m.phrase for m in methods])}" if methods else "")
+                 + ".")
+    verdict = "held" if steps[0].holds else "did not hold"
+    parts.append(f"The configural model {verdict} ({_fit_figures(first)}).")
+    for step in steps[1:]:
+        name = _capital(_LEVEL_WORDS.get(step.level, step.level))
+        if step.partial:
+            full = step.full_test
+            with_all = (f"{CHI}({full.df_difference}) = {full.chi_square_difference:.2f}, {_p(full.p_value)}"
+                        if full is not None and not full.not_computed else "no difference statistic")
+            freed = _list([f"the {f.kind.replace('_', ' ')} of {', '.join(f.variables)}" for f in step.freed])
+            state = "held" if step.holds else "still did not hold"
+            parts.append(f"{name} invariance did not hold with every equality ({with_all}); after freeing {freed}, "
+                         f"chosen one at a time by score tests (a data-driven search that capitalises on chance and "
+                         f"needs confirmation in new data), it {state} as partial invariance ({_step_figures(step)}).")
+        else:
+            parts.append(f"{name} invariance {'held' if step.holds else 'did not hold'} ({_step_figures(step)}).")
+    conditional = [s.level for s in steps if s.conditional]
+    if conditional:
+        parts.append(f"The {_list(conditional)} step{'s were' if len(conditional) > 1 else ' was'} tested after a step "
+                     f"that did not hold, so {'they compare' if len(conditional) > 1 else 'it compares'} models "
+                     f"already rejected.")
+    if result.latent_differences:
+        diffs = "; ".join(f"{x.factor} in {x.group}, {num(x.mean, 2)} (SE = {num(x.se, 2)}, {_p(x.p_value)}, "
+                          f"d = {num(x.standardized, 2)})" for x in result.latent_differences)
+        parts.append(f"Latent mean differences from the {'partially invariant ' if any(s.partial for s in steps) else ''}"
+                     f"scalar model, against {result.groups[0]} (d: over the pooled latent standard deviation): {diffs}.")
+    elif result.latent_note:
+        parts.append(_capital(result.latent_note.rstrip(".")) + ".")
+    parts.append("The guide values are conventions rather than strict criteria." if first.method.ordinal else
+                 "The guide values and change-in-fit guides (Cheung & Rensvold, 2002; Chen, 2007) are conventions "
+                 "rather than strict criteria.")
     return " ".join(parts)

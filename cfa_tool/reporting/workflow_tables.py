@@ -9,7 +9,7 @@ from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.method import ADJUSTED_TEST, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.paragraph import comparison_paragraph
+from cfa_tool.reporting.paragraph import comparison_paragraph, invariance_paragraph
 from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit, word_list
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
 
@@ -389,8 +389,11 @@ def invariance_report(result) -> Report:
              *_design_lines(first),
              f"Each step after the configural one is judged by "
              f"{result.rule.description.replace('alpha', unit(result.alpha, 2))}.")
+    from cfa_tool.workflows.invariance import LEVELS, ORDINAL_LEVELS
+
     return Report(ResultKind.INVARIANCE, f"Measurement invariance across {result.group_column} ({', '.join(result.groups)})",
-                  notice, lines, tuple(tables), tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE))
+                  notice, lines, tuple(tables), tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE),
+                  invariance_paragraph(result, ORDINAL_LEVELS if ordinal else LEVELS))
 
 
 # ---------------------------------------------------------------- replicate

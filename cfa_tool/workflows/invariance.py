@@ -17,7 +17,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test,
+from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test,
                                       make_options, moments_for, odd_value_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design)
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
@@ -317,6 +317,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         freed.extend(freed_here)
         conditional = any(not s.holds for s in steps)
         srmr_change = (result.fit.srmr - previous[1].fit.srmr) if previous is not None else None
+        # the description of exactly the model fitted at this step, for the methods paragraph
+        result = _described(result, level_spec, labels, ordinal_items)
         steps.append(InvarianceStep(level, result, test, holds, culprits, conditional, full[0], full[1], full[2],
                                     tuple(freed_here), stopped if partial != "none" and kinds else "", srmr_change))
         previous = (est, result)
