@@ -391,8 +391,13 @@ def estimate_tables(result, group: int = 0) -> list[ReportTable]:
         marks = []
         for r in rows:
             target = r.variables[1]
-            mark = row_problem(result, "loading", r.variables, label) or row_problem(
-                result, "residual_variance", (target,), label)
+            # a row holds two parameters (the loading, the error variance or disturbance): the mark names its own,
+            # as the table may be split with the mark beside the other one's column
+            own = "disturbance" if target in lower else "error variance"
+            mark = "; ".join(f"{name}: {found}" for name, found in (
+                ("loading", row_problem(result, "loading", r.variables, label)),
+                (own, row_problem(result, "factor_variance" if target in lower else "residual_variance", (target,),
+                                  label))) if found)
             if not mark and r_squared.get(target, 0.0) > 1.0:
                 mark = "R² above 1: impossible"
             marks.append(mark)

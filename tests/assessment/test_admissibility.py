@@ -155,3 +155,16 @@ def test_compare_marks_the_inadmissible_model(tmp_path, hs_data):
     models = {m["name"]: m for m in json.loads(out.read_text())["models"]}
     assert models["heywood"]["admissible"] is False and models["plain"]["admissible"] is True
     assert models["heywood"]["problems"][0]["kind"] == "negative residual variance"
+
+
+def test_a_bound_mark_names_the_parameter_it_belongs_to(hs_data):
+    # found in a hostile trial: a loading held at its bound was marked "held at a bound" in the Problem column, which a
+    # split table printed beside the item's free error variance; the mark names its parameter
+    from cfa_tool.reporting.tables import estimate_tables
+    from tests.conftest import THREE_FACTORS
+
+    result = cfa_tool.fit(THREE_FACTORS + "bound loading(visual, x2) <= 0.3\n", hs_data)  # x2's estimate is about .55
+    (visual,) = [t for t in estimate_tables(result) if t.title.startswith("Factor visual")]
+    marks = {row[0]: row[-1] for row in visual.rows}
+    assert marks["x2"] == "loading: held at a bound"
+    assert marks["x3"] == ""
