@@ -29,6 +29,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool import options as check
+from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.method import MissingData
@@ -171,7 +172,7 @@ def misspecified_covariance(spec: Spec, result: FitResult, scale: float = 1.0,
         what = f"a residual correlation of {r:.2f} between {names[0]} and {names[1]}"
     G = L @ mats.A
     wrong = G @ mats.P @ G.T + T
-    if np.linalg.eigvalsh(wrong)[0] <= 0:
+    if log_det_pd(wrong) is None:  # not positive definite, or not finite
         raise ValueError("not positive definite")
     return wrong, what, size
 

@@ -22,6 +22,7 @@ from enum import Enum
 
 import numpy as np
 import pandas as pd
+from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
@@ -272,8 +273,9 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
         raise OptionError(f"{source} gives no value for {', '.join(missing[:5])}")
     model = StructuredModel(table)
     sigma = model.implied(theta)
-    if np.linalg.eigvalsh(sigma)[0] <= 0:
-        raise OptionError(f"{source}: its estimates imply a covariance matrix that is not positive definite")
+    if log_det_pd(sigma) is None:  # not positive definite, or not finite
+        raise OptionError(f"{source}: its estimates imply a covariance matrix that is not positive definite or not finite "
+                          f"(check its estimates for impossible values)")
     cuts = {x: np.asarray(thresholds[x], dtype=float) for x in table.observed if x in thresholds}
     if any(np.any(np.diff(t) <= 0) or not np.isfinite(t).all() for t in cuts.values()):
         raise OptionError(f"{source}: its thresholds are not increasing finite numbers")
@@ -349,8 +351,9 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
         theta = _defaults_beside_given(table, model, theta, np.isnan(given), target,
                                        standardized_entries(table, model, est.theta))
     sigma = model.implied(theta)
-    if np.linalg.eigvalsh(sigma)[0] <= 0:
-        raise OptionError("the population values imply a covariance matrix that is not positive definite")
+    if log_det_pd(sigma) is None:  # not positive definite, or not finite
+        raise OptionError("the population values imply a covariance matrix that is not positive definite or not finite "
+                          "(check the model's fixed and start values for impossible ones)")
     return Population(spec, table, theta, sigma, tuple(defaulted))
 
 

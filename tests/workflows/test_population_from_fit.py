@@ -149,3 +149,16 @@ def test_row_names_are_kept_as_written(tmp_path):
     names: list = []
     read_table(path, [], names)
     assert names[0].tolist() == ["0007", "0010"]
+
+
+def test_an_edited_fit_with_an_impossible_estimate_is_one_line(tmp_path, fitted):
+    # found in a hostile trial: a fit JSON edited to hold a loading of 1e308 stopped simulate with an internal error
+    payload = fitted.to_dict()
+    loading = next(e for e in payload["estimates"] if e["kind"] == "loading" and e["free"])
+    loading["estimate"] = 1e308
+    (tmp_path / "huge.json").write_text(json.dumps(payload))
+    (tmp_path / "m.cfa").write_text(THREE)
+    proc = run("simulate", str(tmp_path / "m.cfa"), "--n", "20", "--output", str(tmp_path / "rows.csv"),
+               "--population-from", str(tmp_path / "huge.json"))
+    assert proc.returncode == 2 and "internal error" not in proc.stderr
+    assert "not positive definite or not finite" in proc.stderr and not (tmp_path / "rows.csv").exists()
