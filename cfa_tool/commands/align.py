@@ -30,7 +30,7 @@ def add_parser(sub) -> None:
     p.add_argument("--trials", type=int, default=ALIGNMENT_TRIALS, metavar="N",
                    help=f"simulated data sets of the Monte Carlo check of the aligned means (default {ALIGNMENT_TRIALS}; "
                         f"0 leaves the check out)")
-    p.add_argument("--seed", type=int, default=1, help="random seed of the Monte Carlo check (default 1)")
+    p.add_argument("--seed", type=int, default=None, help="random seed of the Monte Carlo check (default 1)")
     O.add_incomplete_rows_option(p)
     p.add_argument("--max-iterations", type=int, default=500, metavar="N", help="iteration limit of the estimation (default 500)")
     O.add_data_options(p)
@@ -40,11 +40,15 @@ def add_parser(sub) -> None:
 def run(args: argparse.Namespace) -> int:
     from pathlib import Path
 
+    from cfa_tool.errors import OptionError
     from cfa_tool.workflows.alignment import align
 
     check_files(args, [("--json", args.json)], [args.model, args.data])
+    if args.trials == 0 and args.seed is not None:
+        raise OptionError("--seed sets the random data of the Monte Carlo check, which --trials 0 leaves out: give one "
+                          "or the other")
     result = align(Path(args.model), args.data, args.group, reference_group=args.reference_group,
-                   reference_mean=args.reference_mean, flag_level=args.flag_level, trials=args.trials, seed=args.seed,
+                   reference_mean=args.reference_mean, flag_level=args.flag_level, trials=args.trials, seed=1 if args.seed is None else args.seed,
                    sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep, missing=args.missing,
                    max_iterations=args.max_iterations)
     return emit_report(args, result, [args.model, args.data])

@@ -15,14 +15,14 @@ def add_parser(sub) -> None:
     rep.add_argument("--calibration", metavar="FILE", help="data the model is estimated in")
     rep.add_argument("--validation", metavar="FILE", help="new data the estimates are checked in")
     rep.add_argument("--data", metavar="FILE", help="one data file to split at random into two halves")
-    rep.add_argument("--seed", type=int, default=1, help="seed of the random split (default 1)")
+    rep.add_argument("--seed", type=int, default=None, help="seed of the random split of --data (default 1)")
     O.add_data_options(rep, filters=False)
     O.add_ordinal_options(rep)
     O.add_incomplete_rows_option(rep, O.REFITS_AS_THE_FIT)
-    O.refuse_design_options(rep, "replicate's tight test and cross-validation index compare normal-theory "
-                                 "discrepancies of independent, equally weighted rows (and the random halves would "
-                                 "split clusters), so they would mislead under a sampling design; fit each sample "
-                                 "with 'fit' and its design options instead")
+    O.refuse_design_options(rep, "replicate's tight test and cross-validation index compare the discrepancies of "
+                                 "independent, equally weighted rows (and the random halves would split clusters), so "
+                                 "they would mislead under a sampling design; fit each sample with 'fit' and its design "
+                                 "options instead")
     add_report_options(rep)
 
 
@@ -37,7 +37,10 @@ def run(args: argparse.Namespace) -> int:
     ordinal = {"ordinal": O.ordinal_arg(args.ordinal), "ordinal_estimator": args.ordinal_estimator,
                "missing": args.missing, "sheet": args.sheet, "missing_codes": args.missing_codes}
     if args.data:
-        pair = split_half(model, args.data, seed=args.seed, **ordinal)
+        pair = split_half(model, args.data, seed=1 if args.seed is None else args.seed, **ordinal)
+    elif args.seed is not None:
+        raise OptionError("--seed sets the random split of --data into halves; --calibration and --validation are "
+                          "split already: leave --seed out")
     elif args.calibration and args.validation:
         pair = (replicate(model, args.calibration, args.validation, **ordinal),)
     else:
