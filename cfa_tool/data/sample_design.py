@@ -221,7 +221,9 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             cluster = pairs[columns.cluster][shared.to_numpy()].iloc[0]
             raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
                             f"more than one group of '{printable(group)}'; the groups are fitted as independent samples, "
-                            f"so every cluster must lie within one group")
+                            f"so every cluster must lie within one group (groups that cross clusters, domains of the "
+                            f"sample, are not yet analysed with their clusters): fit each group alone with its clusters "
+                            f"(--keep \"{printable(group)} = ...\"), or group by a column that clusters nest in")
     if columns.cluster is not None:
         names = pd.unique(_labels(frame[columns.cluster]))
         if len(names) < 2:

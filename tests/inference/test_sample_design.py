@@ -385,8 +385,10 @@ def test_a_cluster_across_groups_is_an_error(hs_data):
     from cfa_tool.errors import DataError
 
     data = hs_data.assign(unit=np.arange(len(hs_data)) % 20)  # every unit has rows in both schools
-    with pytest.raises(DataError, match="has rows in more than one group of 'school'"):
+    with pytest.raises(DataError, match="has rows in more than one group of 'school'") as raised:
         cfa_tool.fit(THREE_FACTORS, data, group="school", cluster="unit")
+    # what to do next (new-user trial: languages crossing neighbourhoods left the user without a way on)
+    assert "fit each group alone with its clusters (--keep \"school = ...\")" in str(raised.value)
 
 
 @pytest.mark.parametrize("column, values, kind, words", [
