@@ -26,11 +26,13 @@ def run(args: argparse.Namespace) -> int:
     df = args.df
     if args.model and args.df is not None:
         raise OptionError("give a model file or --df, not both (the model file gives the degrees of freedom)")
-    variables = None
+    variables, ordinal = None, False
     if args.model:
         from cfa_tool.language.parser import read_model_file
 
-        df, variables = model_degrees_of_freedom(read_model_file(args.model))
+        spec = read_model_file(args.model)
+        df, variables = model_degrees_of_freedom(spec)
+        ordinal = bool(spec.ordinal)
     if df is None:
         raise OptionError("give a model file or --df")
-    return emit(args, plan(df, args.test, args.n, args.alpha, args.target, variables=variables))
+    return emit(args, plan(df, args.test, args.n, args.alpha, args.target, variables=variables, ordinal=ordinal))

@@ -607,8 +607,21 @@ def power_report(result) -> Report:
     table = _table("power", "Power and sample size", [("", "l"), ("Value", "r")], [r[:2] for r in rows],
                    f"Note: {result.note}." if result.note else None,
                    values=(["Quantity", "Value"], [[r[0], r[2]] for r in rows]))
-    return Report(ResultKind.POWER, "Power of the RMSEA test (MacCallum, Browne & Sugawara 1996)", None, (), (table,), (),
-                  ("RMSEA values of close and not-close fit are conventions, not laws.",))
+    notes = [POWER_ASSUMES] + ([POWER_ORDINAL] if result.ordinal else [])
+    return Report(ResultKind.POWER, "Power of the RMSEA test (MacCallum, Browne & Sugawara 1996)", None, (), (table,),
+                  tuple(notes), ("RMSEA values of close and not-close fit are conventions, not laws.",))
+
+
+#: what the RMSEA power of MacCallum, Browne & Sugawara (1996) assumes, and what to do when the study differs
+POWER_ASSUMES = ("This power is that of the normal-theory likelihood-ratio test for independent, equally weighted rows "
+                 "answered in full by normally distributed data. A sampling design (clusters or uneven weights make the "
+                 "effective sample size smaller), missing answers and non-normal data lower it, and neither this plan nor "
+                 "power-simulation models them: count on more rows than shown (with a design, common practice multiplies "
+                 "the N shown by the expected design effect).")
+POWER_ORDINAL = ("The model declares ordinal items, whose fits use the adjusted test of least squares on polychoric "
+                 "correlations, not the test planned here: power-simulation simulates ordinal answers and fits them as "
+                 "the fit does (the power, bias and coverage of each parameter, and how often the adjusted test rejects "
+                 "the true model).")
 
 
 # ---------------------------------------------------------------- power-simulation

@@ -38,6 +38,7 @@ class PowerResult(Presentable):
     required_n: int | None
     target_power: float
     note: str | None = None  # when the test's own answer is below what the model needs
+    ordinal: bool = False  # the model declares ordinal items, whose fits use another test than the one planned here
 
     def to_dict(self) -> dict:
         return asdict(self)
@@ -86,9 +87,11 @@ def model_degrees_of_freedom(spec) -> tuple[int, int]:
 
 
 def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 0.05, target_power: float = 0.80,
-         rmsea_null: float | None = None, rmsea_alt: float | None = None, variables: int | None = None) -> PowerResult:
+         rmsea_null: float | None = None, rmsea_alt: float | None = None, variables: int | None = None,
+         ordinal: bool = False) -> PowerResult:
     """Power of the RMSEA test at ``n_obs`` and the smallest N reaching ``target_power``; with the model's
-    number of ``variables``, that N is never below what estimating the model needs (more rows than variables)."""
+    number of ``variables``, that N is never below what estimating the model needs (more rows than variables).
+    ``ordinal``: the model declares ordinal items (the report then says the plan is for the normal-theory test)."""
     if test not in TESTS:
         raise OptionError(f"test must be one of {', '.join(TESTS)}, not '{test}'")
     df = check.whole_number("the degrees of freedom", df, 1, 10**7)
@@ -107,4 +110,4 @@ def plan(df: int, test: str = "close", n_obs: int | None = None, alpha: float = 
                 f"rows than that to be estimated at all (and a factor analysis far more); N = {variables + 2} is shown "
                 f"as the least possible")
         required = variables + 2
-    return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required, target_power, note)
+    return PowerResult(test, df, eps0, epsa, alpha, n_obs, power, required, target_power, note, ordinal)

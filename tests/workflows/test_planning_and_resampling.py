@@ -10,6 +10,7 @@ from cfa_tool.language import parse_model
 from cfa_tool.workflows.montecarlo import monte_carlo_power
 from cfa_tool.workflows.power import required_sample_size, rmsea_power
 from cfa_tool.workflows.simulation import population_from_spec, simulate
+from tests.commands.test_cli import run
 from tests.conftest import THREE_FACTORS
 
 # MacCallum, Browne & Sugawara (1996), Table 4: minimum N for power .80 at alpha .05, tests of
@@ -334,3 +335,19 @@ def test_power_simulation_counts_negative_variance_estimates():
     assert f"(inadmissible): {result.inadmissible};" in " ".join(report_of(result).lines[0].split())
     assert result.to_dict()["inadmissible"] == result.inadmissible
     assert monte_carlo_power(spec, 3000, replications=20, seed=3, workers=1).inadmissible == 0
+
+
+def test_the_power_report_says_what_the_plan_assumes_and_what_ordinal_items_change(tmp_path):
+    # new-user trial: 'power' of a model whose items are all ordinal, fitted under a cluster design, gave the
+    # normal-theory plan without a word about either
+    from cfa_tool.reporting.workflow_tables import POWER_ASSUMES, POWER_ORDINAL
+
+    model = tmp_path / "m.cfa"
+    model.write_text("factor f: a, b, c, d\nordinal a, b, c, d\n")
+    proc = run("power", str(model), "--n", "300")
+    assert proc.returncode == 0, proc.stderr
+    said = " ".join(proc.stdout.split())
+    assert " ".join(POWER_ASSUMES.split()) in said and " ".join(POWER_ORDINAL.split()) in said
+    model.write_text("factor f: a, b, c, d\n")
+    said = " ".join(run("power", str(model), "--n", "300").stdout.split())
+    assert " ".join(POWER_ASSUMES.split()) in said and "declares ordinal items" not in said
