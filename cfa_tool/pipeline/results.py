@@ -79,6 +79,7 @@ class CheckResult(Presentable):
     without_group: int = 0  # rows without a group label (left out)
     #: rows that answer every model variable only if the values that look like no answers (``problems``) are answers
     complete_by_odd_values: int = 0
+    rows_in_file: int | None = None  # rows read before the row filters (None when no filter was given)
 
     @property
     def admissible(self) -> bool:
@@ -91,8 +92,10 @@ class CheckResult(Presentable):
                  f"{len(spec.observed_names)} indicators, all found in {self.source}."]
         if self.groups:
             lines.append(f"Groups: {len(self.groups)} ({', '.join(self.groups)}).")
-        read = (f"{self.rows + self.without_group} read, {self.without_group} without a group label (left out), "
-                f"{self.rows} with one:" if self.without_group else f"{self.rows} read,")
+        kept = self.rows + self.without_group
+        read = f"{kept} read" if self.rows_in_file is None else f"{self.rows_in_file} read, {kept} kept by the row filter"
+        read = (f"{read}, {self.without_group} without a group label (left out), {self.rows} with one:"
+                if self.without_group else f"{read},")
         odd = (f" (and {self.complete_by_odd_values} complete only if the values that look like no answers, named "
                f"above, are answers)" if self.complete_by_odd_values else "")
         lines.append(f"Rows: {read} {self.complete} complete{odd}, {self.with_gaps} with missing answers "
@@ -117,8 +120,8 @@ class CheckResult(Presentable):
                 "complete_rows_by_values_not_answers": self.complete_by_odd_values, "coverage": dict(self.coverage),
                 "groups": list(self.groups) if self.groups else None,
                 "design": self.design.to_dict() if self.design is not None else None, "caution": self.caution,
-                "rows_without_group": self.without_group, "problems": [p.to_dict() for p in self.problems],
-                "notes": list(self.notes)}
+                "rows_without_group": self.without_group, "rows_in_file": self.rows_in_file,
+                "problems": [p.to_dict() for p in self.problems], "notes": list(self.notes)}
 
 
 @dataclass(frozen=True)

@@ -215,6 +215,11 @@ def test_rows_with_gaps_are_kept_by_default(hs_holes):
     found = cfa_tool.check(THREE_FACTORS, hs_holes)
     assert (found.rows, found.complete, found.with_gaps, found.empty) == (301, listwise.n_obs, 301 - listwise.n_obs, 0)
     assert all(0.8 < share < 1 for share in found.coverage.values())
+    assert "Rows: 301 read, " in found.summary() and found.rows_in_file is None
+    # with a row filter the rows line says how many were read and how many kept (new-user trial: "300 read" of 2000)
+    kept = cfa_tool.check(THREE_FACTORS, hs_holes.assign(half=np.arange(301) % 2), keep=["half = 1"])
+    assert kept.rows_in_file == 301 and kept.rows == 150
+    assert "Rows: 301 read, 150 kept by the row filter, " in " ".join(kept.summary().split())
 
 
 def test_satorra_bentler_with_gaps_needs_a_choice(hs_holes):
