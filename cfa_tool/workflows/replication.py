@@ -214,6 +214,33 @@ def _same_file(first, second) -> bool:
         return False
 
 
+def _not_the_same_rows(spec: Spec, first: pd.DataFrame, second: pd.DataFrame, first_source: str,
+                       second_source: str) -> None:
+    """An error when one file's rows (on the model's variables) are all among the other's: a copy under another
+    name, or a validation file that contains the calibration rows, is not new data.  Files whose rows repeat
+    (few items, few answer categories: equal rows are then common by chance) are judged only when at least 90%
+    of the smaller file's rows are distinct."""
+    columns = list(spec.observed_names)
+
+    def rows_of(frame: pd.DataFrame) -> list[bytes]:
+        values = frame[columns].apply(pd.to_numeric, errors="coerce").to_numpy(float)
+        return [row.tobytes() for row in np.where(np.isnan(values), np.inf, values)]  # gaps compared as gaps
+
+    a, b = rows_of(first), rows_of(second)
+    small, large = (a, b) if len(a) <= len(b) else (b, a)
+    if not small or len(set(small)) < 0.9 * len(small):
+        return
+    within = set(large)
+    if all(row in within for row in small):
+        same = len(a) == len(b)
+        inside = first_source if small is a else second_source
+        raise OptionError((f"the calibration data ({first_source}) and the validation data ({second_source}) hold the "
+                           f"same rows" if same else
+                           f"every row of {inside} (on the model's variables) is also in the other file")
+                          + "; replication checks the model in new data (or give one file as --data to split it in "
+                            "two random halves)")
+
+
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
               sheet: str | None = None, missing_codes: tuple[float, ...] = (), **options) -> Replication:
@@ -229,6 +256,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     val_frame, val_source = load_frame(validation, sheet, missing_codes)
     for frame, source in ((cal_frame, cal_source), (val_frame, val_source)):
         check_columns(spec, [str(c) for c in frame.columns], source)
+    _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
     screens = [screened(frame, spec.observed_names, source)
                for frame, source in ((cal_frame, cal_source), (val_frame, val_source))]
     with odd_values_named(next((s for s in screens if s.odd_values), screens[0])):

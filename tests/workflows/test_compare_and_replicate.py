@@ -65,7 +65,13 @@ def test_compare_needs_two_models(hs_data):
 def test_validating_on_the_calibration_sample_reproduces_its_fit(hs_data):
     # With validation data = calibration data, the CVI is the minimum discrepancy F_min
     # (definition, Cudeck & Browne 1983) and the tight chi-square is N F_min on p(p+1)/2 df.
-    rep = replicate(THREE_FACTORS, hs_data, hs_data.copy())  # the same rows (a copy: one file twice is refused)
+    # the same rows, given as moments (the command and replicate() refuse the same rows as validation data)
+    from cfa_tool.data.moments import sample_moments
+    from cfa_tool.workflows.replication import replicate_moments
+
+    spec = cfa_tool.parse_model(THREE_FACTORS)
+    moments = sample_moments(hs_data, spec.observed_names, "Holzinger-Swineford")
+    rep = replicate_moments(spec, moments, moments)
     own = rep.calibration_result.fit
     assert rep.cvi == pytest.approx(own.chi_square / 301, rel=1e-9)
     assert rep.tight_chi_square == pytest.approx(own.chi_square, rel=1e-9)
@@ -348,3 +354,18 @@ def test_every_command_with_row_filters_says_so(hs_data):
         report = report_of(result)
         text = " ".join([*report.lines, *report.notes, *(report.notice.lines if report.notice else ())])
         assert said in text, type(result).__name__
+
+
+def test_a_validation_file_with_the_calibration_rows_is_not_new_data(hs_data, tmp_path):
+    # hostile trial: a copy of the calibration file under another name, and a validation file holding every
+    # calibration row, were accepted (the loose fit equalled the calibration fit, the tight test "held")
+    first = hs_data.iloc[:150]
+    first.to_csv(tmp_path / "a.csv", index=False)
+    first.to_csv(tmp_path / "copy.csv", index=False)
+    hs_data.to_csv(tmp_path / "all.csv", index=False)
+    with pytest.raises(OptionError, match=r"the calibration data \(\S*a.csv\) and the validation data \(\S*copy.csv\) "
+                                          r"hold the same rows"):
+        replicate(THREE_FACTORS, tmp_path / "a.csv", tmp_path / "copy.csv")
+    with pytest.raises(OptionError, match=r"every row of \S*a.csv \(on the model's variables\) is also in the other file"):
+        replicate(THREE_FACTORS, tmp_path / "a.csv", tmp_path / "all.csv")
+    assert replicate(THREE_FACTORS, first, hs_data.iloc[150:]).validation  # other rows: a replication
