@@ -171,8 +171,12 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, valu
             raise DataError(f"{source}: column '{printable(names[col])}' has an infinite value in data row "
                             f"{row_numbers(frame)[row]}")
         empty = np.flatnonzero(np.isnan(values).all(axis=0))
+        if len(empty) == len(names) and len(names) > 1:
+            raise DataError(f"{source}: no row answers any of the model's {len(names)} variables (every cell is empty); "
+                            f"check the data file, or leave these rows out (--keep)")
         if len(empty):
-            listed = ", ".join(f"'{printable(names[j])}'" for j in empty[:5])
+            listed = ", ".join(f"'{printable(names[j])}'" for j in empty[:5]) + (
+                f" and {len(empty) - 5} more" if len(empty) > 5 else "")
             raise DataError(f"{source}: column{'s' if len(empty) > 1 else ''} {listed} "
                             f"{'have' if len(empty) > 1 else 'has'} no answers at all (every cell is empty); "
                             f"check the data file, or take the item out of the model")

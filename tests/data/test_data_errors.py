@@ -120,3 +120,19 @@ def test_values_far_apart_in_scale():
 
 def test_every_data_problem_is_a_user_input_error():
     assert issubclass(DataError, UserInputError) and issubclass(ModelError, UserInputError)
+
+
+def test_a_group_without_any_answer_is_named_as_such(hs_data):
+    # hostile trial: a group whose every answer was empty listed 5 of its 9 empty columns and advised removing items
+    from tests.conftest import THREE_FACTORS
+
+    data = hs_data.copy()
+    items = [f"x{i}" for i in range(1, 10)]
+    data.loc[data.index[-12:], "school"] = "annex"
+    data.loc[data.index[-12:], items] = np.nan
+    with pytest.raises(DataError, match=r"group 'annex' of school\): no row answers any of the model's 9 variables"):
+        cfa_tool.fit(THREE_FACTORS, data, group="school")
+    many = hs_data.copy()
+    many.loc[many.school == "Pasteur", items[:7]] = np.nan
+    with pytest.raises(DataError, match="'x1', 'x2', 'x3', 'x4', 'x5' and 2 more have no answers at all"):
+        cfa_tool.fit(THREE_FACTORS, many, group="school")
