@@ -51,6 +51,19 @@ class CountRule(Enum):
     CLOSE_FIT = "close-fit"  # fewest factors with RMSEA at most .05 (Browne & Cudeck 1993; a convention)
 
 
+class ParallelReference(Enum):
+    """Where the random eigenvalues of parallel analysis come from; ``phrase`` is how reports say it."""
+
+    NORMAL = "normal-data"  # Pearson correlations of random normal rows (Horn 1965)
+    SHUFFLED = "shuffled-answers"  # polychoric correlations of the answers, each item shuffled on its own
+
+    @property
+    def phrase(self) -> str:
+        return {ParallelReference.NORMAL: "random normal data sets of the same size",
+                ParallelReference.SHUFFLED: "copies of the answers with each item shuffled on its own, analysed by "
+                                            "polychoric correlations as the data are (Garrido, Abad & Ponsoda 2013)"}[self]
+
+
 class CountNote(Enum):
     """Reasons to treat the recommended number of factors with care."""
 

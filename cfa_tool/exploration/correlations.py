@@ -38,6 +38,10 @@ class CorrelationInput:
     #: asymptotic covariance of sqrt(N)(r - rho) over the pairs; None: normal theory from the correlations
     gamma: np.ndarray | None = None
     ordinal: tuple[str, ...] = ()  # items treated as ordinal
+    #: every item ordinal: the answers' category codes (N, p; -1 for no answer) and each item's thresholds, for a
+    #: parallel analysis of shuffled answers (None otherwise)
+    codes: np.ndarray | None = None
+    thresholds: tuple[np.ndarray, ...] | None = None
 
     @property
     def p(self) -> int:
@@ -99,8 +103,11 @@ def from_ordinal_moments(moments) -> CorrelationInput:
     """Polychoric input from ``cfa_tool.data.polychoric.OrdinalMoments``, with its asymptotic covariance."""
     R = _checked(moments.correlations, tuple(moments.names), moments.n_obs, moments.source)
     ordinal = tuple(name for name in moments.names if name not in moments.continuous)
+    every = not moments.continuous and moments.codes is not None
     return CorrelationInput(tuple(moments.names), R, int(moments.n_obs), CorrelationKind.POLYCHORIC, moments.source,
-                            0.0, np.asarray(moments.gamma, dtype=float), ordinal)
+                            0.0, np.asarray(moments.gamma, dtype=float), ordinal,
+                            np.asarray(moments.codes) if every else None,
+                            tuple(np.asarray(t, float) for t in moments.thresholds) if every else None)
 
 
 def from_correlations(R: np.ndarray, n_obs: int, names: tuple[str, ...], source: str = "<data>") -> CorrelationInput:

@@ -12,9 +12,13 @@ solutions with 1, 2, ... factors; one recommendation with its reasons.
   triangular, T_ii^2 ~ chi-square(N - i), T_ij ~ N(0, 1) (Bartlett 1933; see Anderson 2003,
   ch. 7), so that a replication costs p^3 rather than N p^2; all replications are
   decomposed in one batched call.  Seeded.  With ordinal items the observed eigenvalues are those
-  of the polychoric correlations and the reference still comes from normal data (polychoric
-  correlations of 100 simulated ordinal data sets would take minutes); the result's input kind
-  says so to whoever reports it.
+  of the polychoric correlations, whose sampling variability exceeds that of Pearson correlations
+  of normal data, so the reference comes from the answers themselves: each item's column shuffled
+  on its own (Buja & Eyuboglu 1992), which keeps its categories and thresholds and breaks every
+  association, analysed by polychoric correlations as the data are (Garrido, Abad & Ponsoda 2013);
+  the correlations of all pairs of all shuffled copies are estimated together
+  (``data.polychoric.polychoric_tables``).  With continuous items beside ordinal ones the
+  reference remains normal data; the result says which reference it used.
 * Minimum average partial test (Velicer 1976): the average squared partial correlation after
   removing the first 0, 1, 2, ... principal components; the count at its minimum.  The revised
   test (Velicer, Eaton & Fava 2000) averages fourth powers instead.
@@ -40,7 +44,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.errors import EstimationError
-from cfa_tool.exploration.choices import CorrelationKind, CountNote, CountRule, ExtractionMethod
+from cfa_tool.exploration.choices import CorrelationKind, CountNote, CountRule, ExtractionMethod, ParallelReference
 from cfa_tool.exploration.correlations import CorrelationInput
 from cfa_tool.exploration.extraction import FactorSolution, extract, largest_factor_count
 
@@ -65,6 +69,7 @@ class ParallelAnalysis:
     factor_exceeded: np.ndarray
     components: int  # count by the principal-component version
     factors: int  # count by the factor-analytic version
+    reference: ParallelReference = ParallelReference.NORMAL  # where the random eigenvalues come from
 
 
 @dataclass(frozen=True, eq=False)
@@ -132,6 +137,33 @@ def random_correlations(n_obs: int, p: int, count: int, rng: np.random.Generator
     return W * d[:, :, None] * d[:, None, :]
 
 
+def permuted_polychoric(codes: np.ndarray, thresholds, count: int, rng: np.random.Generator) -> np.ndarray:
+    """``count`` polychoric correlation matrices of the answers with each item's column shuffled on its own
+    (Buja & Eyuboglu 1992; for ordinal items Garrido, Abad & Ponsoda 2013): the shuffle keeps every item's
+    answers, so its thresholds, and breaks every association.  ``codes`` (N, p): category codes from 0, -1 for
+    no answer (kept where they are in the column, so each pair keeps about its number of rows)."""
+    from cfa_tool.data.polychoric import polychoric_tables
+
+    n, p = codes.shape
+    K = max(len(t) for t in thresholds) + 1
+    padded = np.full((p, K - 1), np.inf)
+    for j, t in enumerate(thresholds):
+        padded[j, :len(t)] = t
+    I, J = np.tril_indices(p, -1)
+    out = np.empty((count, p, p))
+    for r in range(count):
+        shuffled = np.take_along_axis(codes, np.argsort(rng.random((n, p)), axis=0), axis=0)
+        tables = np.empty((len(I), K, K))
+        for k, (i, j) in enumerate(zip(I, J)):
+            both = (shuffled[:, i] >= 0) & (shuffled[:, j] >= 0)
+            tables[k] = np.bincount(shuffled[both, i] * K + shuffled[both, j], minlength=K * K).reshape(K, K)
+        rho = polychoric_tables(tables, padded[I], padded[J])
+        R = np.eye(p)
+        R[I, J] = R[J, I] = rho
+        out[r] = R
+    return out
+
+
 def _leading(observed: np.ndarray, reference: np.ndarray) -> int:
     above = observed > reference
     return int(np.argmin(above)) if not above.all() else len(observed)
@@ -148,9 +180,12 @@ def parallel_analysis(data: CorrelationInput, replications: int = 100, seed: int
     R, p, n = data.correlations, data.p, data.n_obs
     rng = np.random.default_rng(seed)
     chunk = max(1, _CHUNK_CELLS // (p * p))
+    shuffled = data.codes is not None and data.thresholds is not None
     pc, fa = [], []
     for start in range(0, replications, chunk):
-        batch = random_correlations(n, p, min(chunk, replications - start), rng)
+        count = min(chunk, replications - start)
+        batch = (permuted_polychoric(data.codes, data.thresholds, count, rng) if shuffled else
+                 random_correlations(n, p, count, rng))
         pc.append(np.linalg.eigvalsh(batch)[:, ::-1])
         fa.append(np.linalg.eigvalsh(reduced(batch))[:, ::-1])
     pc, fa = np.vstack(pc), np.vstack(fa)
@@ -159,7 +194,8 @@ def parallel_analysis(data: CorrelationInput, replications: int = 100, seed: int
     ref_pc, ref_fa = np.percentile(pc, percentile, axis=0), np.percentile(fa, percentile, axis=0)
     return ParallelAnalysis(replications, seed, percentile, observed_pc, ref_pc, pc.mean(axis=0),
                             (pc < observed_pc).mean(axis=0), observed_fa, ref_fa, fa.mean(axis=0),
-                            (fa < observed_fa).mean(axis=0), _leading(observed_pc, ref_pc), _leading(observed_fa, ref_fa))
+                            (fa < observed_fa).mean(axis=0), _leading(observed_pc, ref_pc), _leading(observed_fa, ref_fa),
+                            ParallelReference.SHUFFLED if shuffled else ParallelReference.NORMAL)
 
 
 def average_partial(R: np.ndarray) -> AveragePartial:

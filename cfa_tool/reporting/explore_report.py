@@ -49,7 +49,7 @@ def count_table(result) -> ReportTable:
              "yes" if s.rule in count.combined else ""] for s in count.suggestions]
     return _table("factor_count", "How many factors: what each rule suggests",
                   [("Rule", "l"), ("Factors", "r"), ("Part of the recommendation", "l")], rows,
-                  f"Parallel analysis: {count.parallel.replications} random data sets of the same size, "
+                  f"Parallel analysis: {count.parallel.replications} {count.parallel.reference.phrase}, "
                   f"{count.parallel.percentile:g}th percentile (Glorfeld 1995). An empty cell: the rule found no "
                   f"count among the solutions tried.")
 

@@ -141,6 +141,7 @@ class ExploreResult(Presentable):
                 "reasons": self.reasons(),
                 "caution": RULES_CAUTION,
                 "parallel_analysis": {"replications": pa.replications, "seed": pa.seed, "percentile": pa.percentile,
+                                      "reference": pa.reference.value,
                                       "component_eigenvalues": pa.component_eigenvalues.tolist(),
                                       "component_reference": pa.component_reference.tolist(),
                                       "factor_eigenvalues": pa.factor_eigenvalues.tolist(),

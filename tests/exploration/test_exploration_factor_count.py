@@ -141,3 +141,78 @@ def test_parallel_analysis_is_seeded():
     np.testing.assert_array_equal(first.parallel.component_reference, again.parallel.component_reference)
     other = count_factors(data, 50, seed=10)
     assert not np.array_equal(first.parallel.component_reference, other.parallel.component_reference)
+
+
+def _mle_by_scipy(table: np.ndarray, ti: np.ndarray, tj: np.ndarray) -> float:
+    """The polychoric correlation of one table written out independently: cell probabilities from scipy's
+    bivariate normal distribution function, the likelihood maximised by scipy's bounded scalar search."""
+    from scipy.optimize import minimize_scalar
+    from scipy.stats import multivariate_normal
+
+    a = np.concatenate([[-10.0], ti, [10.0]])
+    b = np.concatenate([[-10.0], tj, [10.0]])
+
+    def negative(rho: float) -> float:
+        dist = multivariate_normal([0.0, 0.0], [[1.0, rho], [rho, 1.0]])
+        F = np.array([[dist.cdf([x, y]) for y in b] for x in a])
+        P = np.clip(F[1:, 1:] - F[:-1, 1:] - F[1:, :-1] + F[:-1, :-1], 1e-300, None)
+        return -float(np.sum(table * np.log(P)))
+
+    return float(minimize_scalar(negative, bounds=(-0.99, 0.99), method="bounded", options={"xatol": 1e-9}).x)
+
+
+def test_polychoric_correlations_of_many_tables_at_once():
+    # Olsson (1979) two-step estimator: the batched Fisher scoring against the one-table estimator and against
+    # the likelihood written out with scipy (different categories per item: padded thresholds)
+    from scipy.stats import norm
+
+    from cfa_tool.data.polychoric import polychoric_pair, polychoric_tables
+
+    rng = np.random.default_rng(4)
+    tables, first, second, single = [], [], [], []
+    for k, l, r in ((2, 2, 0.5), (3, 5, -0.3), (5, 5, 0.7), (4, 2, 0.1), (5, 3, -0.6)):
+        z = rng.multivariate_normal([0, 0], [[1, r], [r, 1]], 600)
+        x = np.searchsorted(np.quantile(z[:, 0], np.linspace(0, 1, k + 1)[1:-1]), z[:, 0])
+        y = np.searchsorted(np.quantile(z[:, 1], np.linspace(0, 1, l + 1)[1:-1] ** 1.3), z[:, 1])
+        table = np.zeros((5, 5))
+        np.add.at(table, (x, y), 1)
+        ti = norm.ppf(np.cumsum(np.bincount(x, minlength=k))[:-1] / 600)
+        tj = norm.ppf(np.cumsum(np.bincount(y, minlength=l))[:-1] / 600)
+        tables.append(table)
+        first.append(np.concatenate([ti, np.full(4 - len(ti), np.inf)]))
+        second.append(np.concatenate([tj, np.full(4 - len(tj), np.inf)]))
+        single.append((table[:k, :l], ti, tj))
+    found = polychoric_tables(np.array(tables), np.array(first), np.array(second))
+    for rho, (table, ti, tj) in zip(found, single):
+        assert rho == pytest.approx(polychoric_pair(table, ti, tj), abs=1e-6)
+    for rho, (table, ti, tj) in list(zip(found, single))[:2]:
+        assert rho == pytest.approx(_mle_by_scipy(table, ti, tj), abs=1e-5)
+
+
+def test_ordinal_parallel_analysis_takes_its_reference_from_shuffled_answers():
+    # new-user trial: polychoric eigenvalues against normal-data Pearson eigenvalues over-extracted (4 for 3);
+    # the shuffled answers keep each item's categories and break every association (Garrido, Abad & Ponsoda 2013)
+    import dataclasses
+
+    from cfa_tool.data.polychoric import ordinal_moments
+    from cfa_tool.exploration.choices import ParallelReference
+    from cfa_tool.exploration.correlations import from_ordinal_moments
+    from cfa_tool.exploration.factor_count import parallel_analysis
+
+    loadings = np.kron(np.eye(3), np.full((4, 1), 0.65))
+    phi = np.full((3, 3), 0.3) + 0.7 * np.eye(3)
+    data = simulate_cfa(loadings, phi, np.eye(12) * (1 - 0.65**2), 400, 8)
+    cut = data.apply(lambda column: np.searchsorted([-0.8, 0.0, 0.9], column) + 1)
+    moments = ordinal_moments(cut, tuple(cut.columns), "simulated")
+    ordinal = from_ordinal_moments(moments)
+    shuffled = parallel_analysis(ordinal, replications=30, seed=2)
+    assert shuffled.reference is ParallelReference.SHUFFLED
+    assert (shuffled.components, shuffled.factors) == (3, 3)
+    # the shuffled copies' correlations are near zero, about as spread as polychoric estimates of independent items
+    from cfa_tool.exploration.factor_count import permuted_polychoric
+
+    R = permuted_polychoric(ordinal.codes, ordinal.thresholds, 20, np.random.default_rng(1))
+    off = R[:, *np.tril_indices(12, -1)]
+    assert abs(off.mean()) < 0.01 and 0.8 / np.sqrt(400) < off.std() < 1.6 / np.sqrt(400)
+    mixed = dataclasses.replace(ordinal, codes=None, thresholds=None)  # continuous items beside: normal data
+    assert parallel_analysis(mixed, replications=30, seed=2).reference is ParallelReference.NORMAL
