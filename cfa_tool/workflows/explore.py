@@ -113,9 +113,25 @@ class ExploreResult(Presentable):
         """Why the recommendation is what it is, in plain words."""
         count = self.exploration.count
         combined = [f"{RULE_WORDS[r]}: {count.suggestion(r)}" for r in count.combined]
-        lines = [f"Recommended: {count.recommended} factor{'s' if count.recommended != 1 else ''}, the middle value of "
-                 f"three rules ({'; '.join(combined)})."]
-        lines += [NOTE_WORDS[n] for n in count.notes]
+        middle = int(np.median([count.suggestion(r) for r in count.combined]))
+        if middle == 0:
+            lines = [f"No factor recommended: the middle value of three rules is 0 ({'; '.join(combined)})."]
+        else:
+            lines = [f"Recommended: {count.recommended} factor{'s' if count.recommended != 1 else ''}, the middle value "
+                     f"of three rules ({'; '.join(combined)})."]
+        for note in count.notes:
+            if note is CountNote.RULES_DISAGREE:  # say which rules count otherwise
+                other = [f"{RULE_WORDS[s.rule]}: {s.factors}" for s in count.suggestions
+                         if s.factors is not None and s.factors != middle]
+                agree = len({count.suggestion(r) for r in count.combined}) == 1
+                lines.append((f"The three rules agree; other rules count otherwise ({'; '.join(other)})." if agree else
+                              f"The rules disagree about the number of factors ({'; '.join(other)} count otherwise).")
+                             if other else NOTE_WORDS[note])
+            elif middle == 0:  # no factor recommended: the notes about the one factor shown for inspection
+                if note not in (CountNote.NEXT_EIGENVALUE_BORDERLINE, CountNote.NEXT_EIGENVALUE_ABOVE_CHANCE):
+                    lines.append(NOTE_WORDS[note].replace("The recommended solution", "The one-factor solution shown"))
+            else:
+                lines.append(NOTE_WORDS[note])
         if self.requested is not None and self.requested != count.recommended:
             lines.append(f"The solution below has {self.requested} factors, as asked, not the {count.recommended} "
                          f"recommended.")

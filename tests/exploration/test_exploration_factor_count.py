@@ -133,6 +133,12 @@ def test_no_structure_is_no_factor_above_chance():
     found = count_factors(_input(frame), replications=100, seed=2)
     assert found.parallel.components == 0 and found.average_partial.components == 0
     assert found.recommended == 1 and CountNote.NO_FACTOR_ABOVE_CHANCE in found.notes
+    # the report does not call the one factor shown for inspection "recommended" (hostile trial)
+    from cfa_tool.workflows.explore import explore
+
+    reasons = explore(frame, replications=50).reasons()
+    assert reasons[0].startswith("No factor recommended: the middle value of three rules is 0 (")
+    assert not any("one more factor" in line or "The recommended solution" in line for line in reasons)
 
 
 def test_parallel_analysis_is_seeded():
