@@ -37,6 +37,7 @@ class ExploreSettings:
     count: bool | None = None  # run the factor-count rules; None: when the number of factors is not given
     standard_errors: bool = True
     threshold: float = DEFAULT_THRESHOLD  # of the draft model
+    factor_names: tuple[str, ...] | None = None  # the factors' names (a target file's columns); None: placeholders
 
 
 @dataclass(frozen=True, eq=False)
@@ -103,5 +104,6 @@ def explore_correlations(data: CorrelationInput, settings: ExploreSettings = Exp
             solution = extract(data, factors, settings.extraction)
         rotated = rotate(solution.loadings, settings.rotation)
         errors = loading_errors(data, solution, rotated) if settings.standard_errors else None
-    draft = draft_model(data.names, rotated.pattern, settings.threshold, data.ordinal, describe(settings, data, factors))
+    draft = draft_model(data.names, rotated.pattern, settings.threshold, data.ordinal, describe(settings, data, factors),
+                        settings.factor_names)
     return Exploration(data, settings, count, solution, rotated, errors, draft)

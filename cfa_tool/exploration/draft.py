@@ -21,7 +21,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.errors import DataError, printable
+from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.exploration.choices import Placement
 
 DEFAULT_THRESHOLD = 0.30  # common practice
@@ -103,9 +103,11 @@ def _statement(head: str, items: list[str], prefix: str = "") -> list[str]:
 
 
 def draft_model(names: tuple[str, ...], pattern: np.ndarray, threshold: float = DEFAULT_THRESHOLD,
-                ordinal: tuple[str, ...] = (), description: str = "") -> DraftModel:
+                ordinal: tuple[str, ...] = (), description: str = "",
+                given_names: tuple[str, ...] | None = None) -> DraftModel:
     """The draft model text (module docstring); ``description`` (one line, e.g. the extraction and
-    rotation used) goes into the first comment; ``ordinal`` names items to declare ordinal."""
+    rotation used) goes into the first comment; ``ordinal`` names items to declare ordinal; ``given_names``:
+    the factors' names (a target file's columns), else placeholders."""
     from cfa_tool import options
 
     threshold = options.real_number("the loading threshold", threshold, 0.0, 1.0, open_low=True, open_high=True)
@@ -113,7 +115,15 @@ def draft_model(names: tuple[str, ...], pattern: np.ndarray, threshold: float = 
     pattern = np.asarray(pattern, dtype=float)
     m = pattern.shape[1]
     written_names = {name: model_name(name) for name in names}
-    labels = factor_names(m, names)
+    if given_names is not None and len(given_names) == m:
+        clash = [f for f in given_names if f.casefold() in {x.casefold() for x in names}]
+        if clash:
+            raise OptionError(f"the factor name '{printable(clash[0])}' is also an item's name; a model cannot use one "
+                              f"name for both: rename the factor")
+        labels = tuple(model_name(f) for f in given_names)
+    else:
+        given_names = None
+        labels = factor_names(m, names)
     placements = place_items(names, pattern, threshold)
     members: list[list[ItemPlacement]] = [[] for _ in range(m)]
     for item in placements:
@@ -127,7 +137,8 @@ def draft_model(names: tuple[str, ...], pattern: np.ndarray, threshold: float = 
     about = printable(description).strip()
     heading = "Draft model from an exploratory factor analysis" + (f": {about}" if about else "") + "."
     lines = ["# " + line for line in textwrap.wrap(heading, _LINE)]
-    lines += ["# The factor names are placeholders: rename each factor for what its items have in common.",
+    lines += ["# The factor names are placeholders: rename each factor for what its items have in common."
+              if given_names is None else "# The factor names are those of the target.",
              "# Each item is on the factor of its largest pattern loading (in absolute value); items are listed by",
              "# loading, largest first, so the first item, which sets the factor's scale, loads most strongly.",
              f"# Items with loadings of {cut} or more on several factors, or on none, are listed at the end for you",

@@ -360,6 +360,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
                           "loading is aimed at zero, empty where free) or, from Python, a matrix (target=...)")
     if target is not None and rotation_method is not RotationMethod.TARGET:
         raise OptionError(f"a target applies to target rotation only, not to {rotation_method.value}")
+    target_file = None
     if isinstance(target, (str, Path)):
         from cfa_tool.exploration.target_file import read_target_file
 
@@ -389,7 +390,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     correlations = _correlations(frame, names, source, ordinal_items, notes)
     settings = ExploreSettings(factors=requested, extraction=extraction_method,
                                rotation=RotationSpec(rotation_method, target=target), replications=replications,
-                               seed=seed, count=True, threshold=threshold)
+                               seed=seed, count=True, threshold=threshold,
+                               factor_names=target_file.factors if target_file is not None else None)
     exploration = explore_correlations(correlations, settings)
     fits = exploration.count.fits
     largest = exploration.factors + 2

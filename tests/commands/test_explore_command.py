@@ -206,3 +206,21 @@ def test_design_id_and_group_columns_are_not_taken_for_items_and_are_named(hs_da
         ["weights", None, "weights", "ids", "strata", None]
     named = explore(data, items="x1..x9, final_weight", factors=3, replications=10)  # named: explored
     assert "final_weight" in named.to_dict()["items"]
+
+
+def test_a_target_file_names_the_factors(hs_data, tmp_path):
+    # hostile trial: the target's factor names were dropped for factor1, factor2, factor3
+    import cfa_tool
+
+    target = tmp_path / "target.csv"
+    target.write_text("item,speed,visual,verbal\nx1,0,,0\nx4,0,0,\nx7,,0,0\n")
+    result = cfa_tool.explore(hs_data, items=ITEMS, rotation="target", target=target)
+    assert result.exploration.draft.factor_names == ("speed", "visual", "verbal")
+    lines = {line.lstrip("# ").split(":")[0]: line for line in result.draft_text.splitlines()
+             if line.lstrip("# ").startswith("factor ")}
+    assert "x1" in lines["factor visual"] and "x4" in lines["factor verbal"] and "x7" in lines["factor speed"]
+    assert "factor1" not in result.summary() and "The factor names are those of the target." in result.draft_text
+    clash = tmp_path / "clash.csv"
+    clash.write_text("item,x2,visual,verbal\nx1,0,,0\nx4,0,0,\nx7,,0,0\n")
+    with pytest.raises(OptionError, match="the factor name 'x2' is also an item's name"):
+        cfa_tool.explore(hs_data, items=ITEMS, rotation="target", target=clash)
