@@ -41,7 +41,7 @@ from scipy import linalg
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
-from cfa_tool.data.moments import numeric_columns, sample_moments
+from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
 from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fits
@@ -109,13 +109,16 @@ class BootstrapResult(Presentable):
 def _replicate(tasks: list) -> list:
     """(converged, values, standardized values, chi-square, failed) of each task's resample, refitted together;
     failed: a resample of rows with gaps whose saturated model cannot be estimated."""
-    spec, _, names, _, start, _, gaps = tasks[0]
-    samples = []
-    for _, rows, _, seed, _, design, _ in tasks:
-        try:
-            samples.append(_resample(rows, names, seed, design, gaps))
-        except (DataError, EstimationError):  # too few answers of an item or pair, or EM without convergence
-            samples.append(None)
+    spec, rows, names, _, start, design, gaps = tasks[0]
+    if design is None and not gaps:  # resamples of complete rows: their moments in one stacked computation
+        samples = resampled_moments(rows, names, [task[3] for task in tasks])
+    else:
+        samples = []
+        for _, rows, _, seed, _, design, _ in tasks:
+            try:
+                samples.append(_resample(rows, names, seed, design, gaps))
+            except (DataError, EstimationError):  # too few answers of an item or pair, or EM without convergence
+                samples.append(None)
     fits = iter(replicate_fits(spec, [m for m in samples if m is not None], start, fit_indices_wanted=False,
                                full_information=gaps))
     out = []
@@ -126,6 +129,20 @@ def _replicate(tasks: list) -> list:
             fit = next(fits)
             out.append((fit.converged, fit.values, fit.standardized, fit.chi_square, False))
     return out
+
+
+def resampled_moments(rows: np.ndarray, names: tuple[str, ...], seeds: list[int]) -> list[SampleMoments]:
+    """The moments of the resamples of complete ``rows`` drawn with ``seeds`` (each resample's rows drawn from
+    its own seed, as :func:`_resample` draws them), computed together: the means and covariances (divisor N,
+    as :func:`pipeline.continuous.moments_from_rows`) of a (resamples, N, p) stack in batched matrix products."""
+    n = len(rows)
+    picked = np.array([np.random.default_rng(seed).integers(0, n, n) for seed in seeds])
+    drawn = rows[picked]
+    means = drawn.mean(axis=1)
+    dev = drawn - means[:, None, :]
+    covariances = np.swapaxes(dev, 1, 2) @ dev / n
+    return [SampleMoments(tuple(names), covariances[r], means[r], n, n, 0, "<replication>", None, drawn[r])
+            for r in range(len(seeds))]
 
 
 def _resample(rows: np.ndarray, names: tuple[str, ...], seed: int, design, gaps: bool = False):
