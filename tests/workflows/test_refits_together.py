@@ -61,3 +61,18 @@ def test_power_simulation_counts_what_one_fit_at_a_time_counts(monkeypatch):
     for a, b in zip(together.parameters, alone.parameters):
         for name in ("mean_estimate", "sd_estimate", "mean_se", "coverage", "power"):
             assert getattr(a, name) == pytest.approx(getattr(b, name), rel=1e-7, abs=1e-9), (a.label, name)
+
+
+def _blas_threads(_task) -> list[int]:
+    from threadpoolctl import threadpool_info
+
+    return [lib["num_threads"] for lib in threadpool_info() if lib["user_api"] == "blas"]
+
+
+def test_worker_processes_compute_with_one_blas_thread_each():
+    """The parallelism is across processes (numerics.threads): each worker's BLAS runs one thread, read back by
+    threadpoolctl's own report, whatever the parent runs with."""
+    from cfa_tool.workflows.parallel import run_tasks
+
+    counts = run_tasks(_blas_threads, list(range(4)), workers=2, chunk=1)
+    assert counts and all(c == [1] * len(c) and c for c in counts)
