@@ -133,16 +133,25 @@ def _replicate(tasks: list) -> list:
 
 def resampled_moments(rows: np.ndarray, names: tuple[str, ...], seeds: list[int]) -> list[SampleMoments]:
     """The moments of the resamples of complete ``rows`` drawn with ``seeds`` (each resample's rows drawn from
-    its own seed, as :func:`_resample` draws them), computed together: the means and covariances (divisor N,
-    as :func:`pipeline.continuous.moments_from_rows`) of a (resamples, N, p) stack in batched matrix products."""
-    n = len(rows)
-    picked = np.array([np.random.default_rng(seed).integers(0, n, n) for seed in seeds])
-    drawn = rows[picked]
-    means = drawn.mean(axis=1)
-    dev = drawn - means[:, None, :]
-    covariances = np.swapaxes(dev, 1, 2) @ dev / n
-    return [SampleMoments(tuple(names), covariances[r], means[r], n, n, 0, "<replication>", None, drawn[r])
-            for r in range(len(seeds))]
+    its own seed, as :func:`_resample` draws them), computed together from how often each row is drawn: with
+    counts c_r and the rows x_i centred at their mean, resample r's mean is m_r = sum_i c_ri x_i / N and its
+    covariance (divisor N, as :func:`pipeline.continuous.moments_from_rows`) sum_i c_ri x_i x_i' / N - m_r m_r'
+    -- products of each resample's counts with the rows and their cross products (N, p * p).  The moments carry no
+    rows, as moments read from summary statistics do: a refit of complete rows uses only the moments."""
+    n, p = rows.shape
+    counts = np.zeros((len(seeds), n))
+    for r, seed in enumerate(seeds):
+        counts[r] = np.bincount(np.random.default_rng(seed).integers(0, n, n), minlength=n)
+    centre = rows.mean(axis=0)
+    centred = rows - centre
+    # a stack of (1, N) products, one per resample: each resample's sums do not depend on the others in the
+    # batch (one (R, N) product would be summed in blocks that depend on R)
+    weights = counts[:, None, :]
+    shifts = (weights @ centred)[:, 0] / n
+    products = (centred[:, :, None] * centred[:, None, :]).reshape(n, p * p)
+    covariances = ((weights @ products)[:, 0] / n).reshape(-1, p, p) - shifts[:, :, None] * shifts[:, None, :]
+    means = centre + shifts
+    return [SampleMoments(tuple(names), covariances[r], means[r], n, n, 0, "<replication>") for r in range(len(seeds))]
 
 
 def _resample(rows: np.ndarray, names: tuple[str, ...], seed: int, design, gaps: bool = False):
