@@ -54,8 +54,9 @@ def stackable(model: StructuredModel) -> bool:
 @dataclass(frozen=True)
 class StackedFits:
     """The end of R searches: estimates (R, q), discrepancy (R,), expected information at the
-    estimates (R, q, q), whether each converged and its iterations.  Estimates of replications that
-    did not converge are where their search stopped (their start when it never moved)."""
+    estimates (R, q, q; NaN for replications that did not converge), whether each converged and its
+    iterations.  Estimates of replications that did not converge are where their search stopped (their
+    start when it never moved)."""
 
     theta: np.ndarray
     value: np.ndarray
@@ -191,8 +192,8 @@ def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarr
     if len(running) == 0:
         return StackedFits(theta, value, information, converged, iterations)
     f, g, H, N, ok = objective.evaluate(theta[running], running)
-    running, f, g, H, N = running[ok], f[ok], g[ok], H[ok], N[ok]  # a start outside the region: left to the caller
-    value[running], information[running] = f, H
+    running, f, g, H, N = _kept(ok, running, f, g, H, N)  # a start outside the region: left to the caller
+    value[running] = f
     previous = np.full(len(running), np.inf)
     for it in range(1, max_iterations + 1):
         if len(running) == 0:
@@ -215,6 +216,7 @@ def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarr
         decrement = -np.einsum("ij,ij->i", g, step)
         done = (newton_first | scoring_ok) & (decrement < TOLERANCE)
         converged[running[done]] = True
+        information[running[done]] = H[done]
         # Newton's decrement falls quadratically: when the next one is far below the tolerance, the full
         # step ends the search (optimizer.minimise)
         last_step = newton_first & (decrement**3 < 1e-2 * TOLERANCE * previous**2)
@@ -226,21 +228,27 @@ def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarr
         go = ~done & (newton_first | scoring_ok) & np.isfinite(step).all(axis=1)
         previous = decrement
         # keep the replications still searching
-        running, f, g, H, step, previous, last_step = (a[go] for a in (running, f, g, H, step, previous, last_step))
+        running, f, g, H, step, previous, last_step = _kept(go, running, f, g, H, step, previous, last_step)
         if len(running) == 0:
             break
         trial, t, found = _line_search(objective, theta[running], f, g, step, running)
-        running, trial, t, previous, last_step = (a[found] for a in (running, trial, t, previous, last_step))
+        running, trial, t, previous, last_step = _kept(found, running, trial, t, previous, last_step)
         f, g, H, N, ok = objective.evaluate(trial, running)
-        running, trial, t, previous, last_step, f, g, H, N = (
-            a[ok] for a in (running, trial, t, previous, last_step, f, g, H, N))
-        theta[running], value[running], information[running] = trial, f, H
+        running, trial, t, previous, last_step, f, g, H, N = _kept(ok, running, trial, t, previous, last_step, f, g, H, N)
+        theta[running], value[running] = trial, f
         iterations[running] = it
         finished = last_step & (t == 1.0)
         converged[running[finished]] = True
-        keep = ~finished
-        running, f, g, H, N, previous = (a[keep] for a in (running, f, g, H, N, previous))
+        information[running[finished]] = H[finished]
+        running, f, g, H, N, previous = _kept(~finished, running, f, g, H, N, previous)
     return StackedFits(theta, value, information, converged, iterations)
+
+
+def _kept(keep: np.ndarray, *arrays: np.ndarray) -> tuple:
+    """The rows ``keep`` of each array (the arrays themselves when all are kept, as they mostly are: no copies)."""
+    if keep.all():
+        return arrays
+    return tuple(a[keep] for a in arrays)
 
 
 def _line_search(objective: StackedNormal, theta: np.ndarray, f0: np.ndarray, g: np.ndarray, step: np.ndarray,
