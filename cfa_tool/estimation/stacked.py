@@ -31,6 +31,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+from numpy.linalg import _umath_linalg  # the stacked LAPACK kernels of np.linalg (see _cholesky)
 
 from cfa_tool.estimation.optimizer import CLOSED_FORM_NEWTON_BELOW, NEAR_MINIMUM
 from cfa_tool.model.implied import StructuredModel
@@ -53,8 +54,9 @@ def stackable(model: StructuredModel) -> bool:
 @dataclass(frozen=True)
 class StackedFits:
     """The end of R searches: estimates (R, q), discrepancy (R,), expected information at the
-    estimates (R, q, q), whether each converged and its iterations.  Estimates of replications that
-    did not converge are where their search stopped (their start when it never moved)."""
+    estimates (R, q, q; NaN for replications that did not converge), whether each converged and its
+    iterations.  Estimates of replications that did not converge are where their search stopped (their
+    start when it never moved)."""
 
     theta: np.ndarray
     value: np.ndarray
@@ -190,8 +192,8 @@ def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarr
     if len(running) == 0:
         return StackedFits(theta, value, information, converged, iterations)
     f, g, H, N, ok = objective.evaluate(theta[running], running)
-    running, f, g, H, N = running[ok], f[ok], g[ok], H[ok], N[ok]  # a start outside the region: left to the caller
-    value[running], information[running] = f, H
+    running, f, g, H, N = _kept(ok, running, f, g, H, N)  # a start outside the region: left to the caller
+    value[running] = f
     previous = np.full(len(running), np.inf)
     for it in range(1, max_iterations + 1):
         if len(running) == 0:
@@ -214,6 +216,7 @@ def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarr
         decrement = -np.einsum("ij,ij->i", g, step)
         done = (newton_first | scoring_ok) & (decrement < TOLERANCE)
         converged[running[done]] = True
+        information[running[done]] = H[done]
         # Newton's decrement falls quadratically: when the next one is far below the tolerance, the full
         # step ends the search (optimizer.minimise)
         last_step = newton_first & (decrement**3 < 1e-2 * TOLERANCE * previous**2)
@@ -225,21 +228,27 @@ def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarr
         go = ~done & (newton_first | scoring_ok) & np.isfinite(step).all(axis=1)
         previous = decrement
         # keep the replications still searching
-        running, f, g, H, step, previous, last_step = (a[go] for a in (running, f, g, H, step, previous, last_step))
+        running, f, g, H, step, previous, last_step = _kept(go, running, f, g, H, step, previous, last_step)
         if len(running) == 0:
             break
         trial, t, found = _line_search(objective, theta[running], f, g, step, running)
-        running, trial, t, previous, last_step = (a[found] for a in (running, trial, t, previous, last_step))
+        running, trial, t, previous, last_step = _kept(found, running, trial, t, previous, last_step)
         f, g, H, N, ok = objective.evaluate(trial, running)
-        running, trial, t, previous, last_step, f, g, H, N = (
-            a[ok] for a in (running, trial, t, previous, last_step, f, g, H, N))
-        theta[running], value[running], information[running] = trial, f, H
+        running, trial, t, previous, last_step, f, g, H, N = _kept(ok, running, trial, t, previous, last_step, f, g, H, N)
+        theta[running], value[running] = trial, f
         iterations[running] = it
         finished = last_step & (t == 1.0)
         converged[running[finished]] = True
-        keep = ~finished
-        running, f, g, H, N, previous = (a[keep] for a in (running, f, g, H, N, previous))
+        information[running[finished]] = H[finished]
+        running, f, g, H, N, previous = _kept(~finished, running, f, g, H, N, previous)
     return StackedFits(theta, value, information, converged, iterations)
+
+
+def _kept(keep: np.ndarray, *arrays: np.ndarray) -> tuple:
+    """The rows ``keep`` of each array (the arrays themselves when all are kept, as they mostly are: no copies)."""
+    if keep.all():
+        return arrays
+    return tuple(a[keep] for a in arrays)
 
 
 def _line_search(objective: StackedNormal, theta: np.ndarray, f0: np.ndarray, g: np.ndarray, step: np.ndarray,
@@ -270,30 +279,14 @@ def _line_search(objective: StackedNormal, theta: np.ndarray, f0: np.ndarray, g:
 
 def _cholesky(A: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Lower Cholesky factors of a stack of symmetric matrices and which of them are positive definite
-    (the others get the identity).  numpy factors a whole stack or raises at the first matrix that is
-    not positive definite; then the stack is factored column by column (the Cholesky-Banachiewicz
-    recurrence, Golub & Van Loan 2013, sec. 4.2), each matrix dropping out at its first pivot that is
-    not positive."""
-    try:
-        factor = np.linalg.cholesky(A)
-        ok = np.isfinite(np.diagonal(factor, axis1=1, axis2=2)).all(axis=1)
-        if ok.all():
-            return factor, ok
-    except np.linalg.LinAlgError:
-        pass
-    R, n, _ = A.shape
-    factor = np.zeros_like(A)
-    ok = np.ones(R, dtype=bool)
-    for j in range(n):
-        row = factor[:, j, :j]
-        pivot = A[:, j, j] - np.einsum("rk,rk->r", row, row)
-        positive = pivot > 0  # False for NaN too
-        ok &= positive
-        root = np.sqrt(np.where(positive, pivot, 1.0))
-        factor[:, j, j] = root
-        if j + 1 < n:
-            factor[:, j + 1:, j] = (A[:, j + 1:, j] - np.einsum("rik,rk->ri", factor[:, j + 1:, :j], row)) / root[:, None]
-    factor[~ok] = np.eye(n)
+    (the others get the identity).  numpy's stacked LAPACK kernel (the one behind np.linalg.cholesky)
+    factors every matrix and leaves NaN where one is not positive definite; np.linalg.cholesky would then
+    raise for the whole stack, so the kernel is called directly and the failures read from the factors."""
+    with np.errstate(invalid="ignore", over="ignore", divide="ignore", under="ignore"):
+        factor = _umath_linalg.cholesky_lo(A, signature="d->d")
+    ok = np.isfinite(np.diagonal(factor, axis1=1, axis2=2)).all(axis=1)
+    if not ok.all():
+        factor[~ok] = np.eye(A.shape[-1])
     return factor, ok
 
 
@@ -309,13 +302,7 @@ def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True) -> tupl
     else:
         ok = np.isfinite(scaled).all(axis=(1, 2))
     x = np.full_like(b, np.nan)
-    if ok.any():
-        try:
-            x[ok] = np.linalg.solve(scaled[ok], (d * b)[ok][:, :, None])[:, :, 0] * d[ok]
-        except np.linalg.LinAlgError:  # a singular one (numpy stops at the first): one by one
-            for r in np.flatnonzero(ok):
-                try:
-                    x[r] = np.linalg.solve(scaled[r], d[r] * b[r]) * d[r]
-                except np.linalg.LinAlgError:
-                    ok[r] = False
+    if ok.any():  # numpy's stacked LU kernel (behind np.linalg.solve): NaN for a singular matrix, not an error
+        with np.errstate(invalid="ignore", over="ignore", divide="ignore", under="ignore"):
+            x[ok] = _umath_linalg.solve(scaled[ok], (d * b)[ok][:, :, None], signature="dd->d")[:, :, 0] * d[ok]
     return x, ok & np.isfinite(x).all(axis=1)

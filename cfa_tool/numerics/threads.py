@@ -7,7 +7,8 @@ Where threads are set (one rule, so that they never oversubscribe the cores):
 
 * a fit (its data moments, estimation and report) of up to :data:`SMALL_MODEL` items runs with one BLAS thread;
 * worker processes of bootstraps, cutoffs and power simulations (``workflows.parallel``) run with one
-  thread each, the parallelism being across processes.
+  thread each, the parallelism being across processes (:func:`one_blas_thread_from_now`, with the libraries
+  the parent process found: a forked worker does not search for them again).
 """
 
 from __future__ import annotations
@@ -23,7 +24,14 @@ def blas_threads_for(p: int):
     (nothing changes for larger ones)."""
     if p > SMALL_MODEL:
         return contextlib.nullcontext()
-    return _OneBlasThread(_blas_libraries())
+    return _OneBlasThread(blas_libraries())
+
+
+def one_blas_thread_from_now() -> None:
+    """This process's BLAS libraries run one thread from now on (a worker process of many fits)."""
+    for lib in blas_libraries():
+        if lib.num_threads != 1:
+            lib.set_num_threads(1)
 
 
 class _OneBlasThread:
@@ -47,7 +55,9 @@ class _OneBlasThread:
 
 
 @lru_cache(maxsize=1)
-def _blas_libraries() -> tuple:
+def blas_libraries() -> tuple:
+    """The BLAS libraries loaded in this process (threadpoolctl finds them, once: the search reads every
+    loaded library and costs milliseconds)."""
     from threadpoolctl import ThreadpoolController
 
     return tuple(lib for lib in ThreadpoolController().lib_controllers if lib.user_api == "blas")

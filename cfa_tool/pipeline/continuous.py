@@ -15,7 +15,8 @@ from cfa_tool.assessment.admissibility import solution_problems
 from cfa_tool.data.descriptives import item_shape
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, normalized_residuals
-from cfa_tool.assessment.fit_indices import fit_indices, normal_theory_parts, srmr, srmr_value
+from cfa_tool.assessment.fit_indices import (baseline_chi_square, cfi_value, fit_indices, normal_theory_parts,
+                                             rmsea_value, srmr, srmr_value)
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
 from cfa_tool.assessment.modification import ModificationIndices, modification_indices
 from cfa_tool.assessment.normality import mardia, whitened_rows
@@ -484,17 +485,14 @@ def _replicate_results(table: ParameterTable, model: StructuredModel, groups: li
             except np.linalg.LinAlgError:
                 se = np.full(values.shape[1], nan)
         chi, cfi, rmsea, srmr_ = gm.n_obs * float(value[r]), nan, nan, nan
-        if fit_indices_wanted:
+        if fit_indices_wanted:  # the indices a replication keeps, as fit_indices computes them (not its RMSEA
+            # interval, close-fit test or information criteria, which root-finding and a log-likelihood would cost)
             S, sigma = gm.covariance, sigmas[r]
-            if full_information is None:
-                base_chi, base_df, loglik = normal_theory_parts([(S, sigma, gm.n_obs, None)])
-            else:
-                base_chi, base_df, loglik = full_information
-            statistics = p * (p + 1) // 2 + (p if table.mean_structure else 0)
-            f = fit_indices(chi_square=chi, df=statistics - table.n_free, baseline_chi_square=base_chi,
-                            baseline_df=base_df, n_obs=gm.n_obs, n_free=table.n_free, srmr=srmr_value(S, sigma),
-                            log_likelihood=loglik)
-            chi, cfi, rmsea, srmr_ = f.chi_square, f.cfi, f.rmsea, f.srmr
+            base_chi, base_df = baseline_chi_square(S, gm.n_obs) if full_information is None else full_information[:2]
+            df = p * (p + 1) // 2 + (p if table.mean_structure else 0) - table.n_free
+            chi = max(chi, 0.0)  # rounding can leave a just-identified model a hair below zero (fit_indices)
+            cfi, rmsea, srmr_ = (cfi_value(chi, df, base_chi, base_df), rmsea_value(chi, df, gm.n_obs),
+                                 float(srmr_value(S, sigma)))
         out.append(ReplicateFit(True, theta[r], values[r], std[r], se, chi, cfi, rmsea, srmr_))
     return out
 

@@ -41,7 +41,7 @@ from scipy import linalg
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
-from cfa_tool.data.moments import numeric_columns, sample_moments
+from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
 from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fits
@@ -109,13 +109,16 @@ class BootstrapResult(Presentable):
 def _replicate(tasks: list) -> list:
     """(converged, values, standardized values, chi-square, failed) of each task's resample, refitted together;
     failed: a resample of rows with gaps whose saturated model cannot be estimated."""
-    spec, _, names, _, start, _, gaps = tasks[0]
-    samples = []
-    for _, rows, _, seed, _, design, _ in tasks:
-        try:
-            samples.append(_resample(rows, names, seed, design, gaps))
-        except (DataError, EstimationError):  # too few answers of an item or pair, or EM without convergence
-            samples.append(None)
+    spec, rows, names, _, start, design, gaps = tasks[0]
+    if design is None and not gaps:  # resamples of complete rows: their moments in one stacked computation
+        samples = resampled_moments(rows, names, [task[3] for task in tasks])
+    else:
+        samples = []
+        for _, rows, _, seed, _, design, _ in tasks:
+            try:
+                samples.append(_resample(rows, names, seed, design, gaps))
+            except (DataError, EstimationError):  # too few answers of an item or pair, or EM without convergence
+                samples.append(None)
     fits = iter(replicate_fits(spec, [m for m in samples if m is not None], start, fit_indices_wanted=False,
                                full_information=gaps))
     out = []
@@ -126,6 +129,29 @@ def _replicate(tasks: list) -> list:
             fit = next(fits)
             out.append((fit.converged, fit.values, fit.standardized, fit.chi_square, False))
     return out
+
+
+def resampled_moments(rows: np.ndarray, names: tuple[str, ...], seeds: list[int]) -> list[SampleMoments]:
+    """The moments of the resamples of complete ``rows`` drawn with ``seeds`` (each resample's rows drawn from
+    its own seed, as :func:`_resample` draws them), computed together from how often each row is drawn: with
+    counts c_r and the rows x_i centred at their mean, resample r's mean is m_r = sum_i c_ri x_i / N and its
+    covariance (divisor N, as :func:`pipeline.continuous.moments_from_rows`) sum_i c_ri x_i x_i' / N - m_r m_r'
+    -- products of each resample's counts with the rows and their cross products (N, p * p).  The moments carry no
+    rows, as moments read from summary statistics do: a refit of complete rows uses only the moments."""
+    n, p = rows.shape
+    counts = np.zeros((len(seeds), n))
+    for r, seed in enumerate(seeds):
+        counts[r] = np.bincount(np.random.default_rng(seed).integers(0, n, n), minlength=n)
+    centre = rows.mean(axis=0)
+    centred = rows - centre
+    # a stack of (1, N) products, one per resample: each resample's sums do not depend on the others in the
+    # batch (one (R, N) product would be summed in blocks that depend on R)
+    weights = counts[:, None, :]
+    shifts = (weights @ centred)[:, 0] / n
+    products = (centred[:, :, None] * centred[:, None, :]).reshape(n, p * p)
+    covariances = ((weights @ products)[:, 0] / n).reshape(-1, p, p) - shifts[:, :, None] * shifts[:, None, :]
+    means = centre + shifts
+    return [SampleMoments(tuple(names), covariances[r], means[r], n, n, 0, "<replication>") for r in range(len(seeds))]
 
 
 def _resample(rows: np.ndarray, names: tuple[str, ...], seed: int, design, gaps: bool = False):

@@ -10,6 +10,7 @@ from typing import Callable, Sequence
 
 from cfa_tool import options as check
 from cfa_tool.errors import OptionError
+from cfa_tool.numerics.threads import blas_libraries, one_blas_thread_from_now
 
 
 REFITS_TOGETHER = 250  # replications a workflow fits together (pipeline.continuous.replicate_fits): enough to
@@ -44,7 +45,8 @@ def run_tasks(fn: Callable, tasks: Sequence, workers: int | None = None, schedul
                 progress(len(batch))
         return out
     out = []
-    with ProcessPoolExecutor(max_workers=workers, initializer=_one_blas_thread) as pool:
+    blas_libraries()  # found here once: forked workers inherit the list (numerics.threads)
+    with ProcessPoolExecutor(max_workers=workers, initializer=one_blas_thread_from_now) as pool:
         done = pool.map(fn, batches) if batched else pool.map(_run_batch, [fn] * len(batches), batches)
         for results in done:
             out.extend(results)
@@ -70,14 +72,6 @@ def _progress_function(progress):
     if "more" in parameters or any(p.kind is p.VAR_KEYWORD for p in parameters.values()):
         return progress
     return lambda done, more=0: progress(done) if done else None
-
-
-def _one_blas_thread() -> None:
-    """Each worker process computes with one BLAS thread: the parallelism is across processes,
-    and for the small matrices of a factor model extra threads only add overhead."""
-    from threadpoolctl import threadpool_limits
-
-    threadpool_limits(1)
 
 
 def _run_batch(fn: Callable, batch: list) -> list:

@@ -122,3 +122,28 @@ def test_models_the_stacked_search_does_not_cover_are_fitted_one_at_a_time(resam
     together = replicate_fits(spec, resamples[:5], None)
     for m, a in zip(resamples[:5], together):
         _same(a, replicate_fit(spec, m), tol=0)
+
+
+def test_stack_factorisations_mark_the_matrices_that_fail_and_solve_the_others_as_numpy_does_one_by_one():
+    """A stack mixing positive definite, indefinite and singular matrices: the stacked Cholesky factors and
+    solutions of the good ones equal numpy's one-matrix np.linalg.cholesky and solve (an independent
+    implementation, LAPACK through numpy's public calls); the bad ones are marked, not raised for the stack."""
+    from cfa_tool.estimation.stacked import _cholesky, _solve
+
+    rng = np.random.default_rng(5)
+    A = rng.normal(size=(12, 6, 18))
+    A = A @ np.swapaxes(A, 1, 2)
+    A[3, 0, 0] = -1.0  # indefinite
+    A[7] = np.outer(np.arange(1.0, 7.0), np.arange(1.0, 7.0))  # singular, positive semidefinite
+    b = rng.normal(size=(12, 6))
+    factor, ok = _cholesky(A)
+    assert ok.tolist() == [r not in (3, 7) for r in range(12)]
+    for r in range(12):
+        expected = np.linalg.cholesky(A[r]) if ok[r] else np.eye(6)
+        np.testing.assert_allclose(factor[r], expected, rtol=1e-12, atol=1e-12)
+    for positive_definite, bad in ((True, (3, 7)), (False, (7,))):
+        x, found = _solve(A, b, positive_definite=positive_definite)
+        assert found.tolist() == [r not in bad for r in range(12)]
+        assert np.isnan(x[~found]).all()
+        for r in np.flatnonzero(found):
+            np.testing.assert_allclose(x[r], np.linalg.solve(A[r], b[r]), rtol=1e-9)

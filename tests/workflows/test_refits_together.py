@@ -61,3 +61,35 @@ def test_power_simulation_counts_what_one_fit_at_a_time_counts(monkeypatch):
     for a, b in zip(together.parameters, alone.parameters):
         for name in ("mean_estimate", "sd_estimate", "mean_se", "coverage", "power"):
             assert getattr(a, name) == pytest.approx(getattr(b, name), rel=1e-7, abs=1e-9), (a.label, name)
+
+
+def _blas_threads(_task) -> list[int]:
+    from threadpoolctl import threadpool_info
+
+    return [lib["num_threads"] for lib in threadpool_info() if lib["user_api"] == "blas"]
+
+
+def test_worker_processes_compute_with_one_blas_thread_each():
+    """The parallelism is across processes (numerics.threads): each worker's BLAS runs one thread, read back by
+    threadpoolctl's own report, whatever the parent runs with."""
+    from cfa_tool.workflows.parallel import run_tasks
+
+    counts = run_tasks(_blas_threads, list(range(4)), workers=2, chunk=1)
+    assert counts and all(c == [1] * len(c) and c for c in counts)
+
+
+def test_resampled_moments_computed_together_equal_each_resamples_own(hs_data):
+    """The bootstrap's moments of complete rows, computed from the counts of each row's draws, against numpy's
+    own mean and covariance (np.cov, divisor N) of the rows each seed draws."""
+    names = tuple(f"x{i}" for i in range(1, 10))
+    rows = hs_data[list(names)].to_numpy(float)
+    seeds = [11, 12, 13, 14, 15]
+    together = bootstrap_module.resampled_moments(rows, names, seeds)
+    for seed, moments in zip(seeds, together):
+        drawn = rows[np.random.default_rng(seed).integers(0, len(rows), len(rows))]
+        np.testing.assert_allclose(moments.means, drawn.mean(axis=0), rtol=1e-13)
+        np.testing.assert_allclose(moments.covariance, np.cov(drawn, rowvar=False, bias=True), rtol=1e-12, atol=1e-13)
+        assert (moments.n_obs, moments.names) == (len(rows), names)
+    # a resample's moments do not depend on the others computed with it
+    alone = bootstrap_module.resampled_moments(rows, names, seeds[2:3])[0]
+    assert np.array_equal(alone.covariance, together[2].covariance) and np.array_equal(alone.means, together[2].means)
