@@ -31,7 +31,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from numpy.linalg import _umath_linalg  # the stacked LAPACK kernels of np.linalg (see _cholesky)
+try:  # the stacked LAPACK kernels behind np.linalg (see _cholesky); not public API, so a numpy without them
+    from numpy.linalg import _umath_linalg  # falls back to one matrix at a time
+except ImportError:  # pragma: no cover - depends on the numpy installed
+    _umath_linalg = None
 
 from cfa_tool.estimation.optimizer import CLOSED_FORM_NEWTON_BELOW, NEAR_MINIMUM
 from cfa_tool.model.implied import StructuredModel
@@ -283,7 +286,7 @@ def _cholesky(A: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     factors every matrix and leaves NaN where one is not positive definite; np.linalg.cholesky would then
     raise for the whole stack, so the kernel is called directly and the failures read from the factors."""
     with np.errstate(invalid="ignore", over="ignore", divide="ignore", under="ignore"):
-        factor = _umath_linalg.cholesky_lo(A, signature="d->d")
+        factor = _stacked(lambda: _umath_linalg.cholesky_lo(A, signature="d->d"), np.linalg.cholesky, A)
     ok = np.isfinite(np.diagonal(factor, axis1=1, axis2=2)).all(axis=1)
     if not ok.all():
         factor[~ok] = np.eye(A.shape[-1])
@@ -303,6 +306,25 @@ def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True) -> tupl
         ok = np.isfinite(scaled).all(axis=(1, 2))
     x = np.full_like(b, np.nan)
     if ok.any():  # numpy's stacked LU kernel (behind np.linalg.solve): NaN for a singular matrix, not an error
+        left, right = scaled[ok], (d * b)[ok][:, :, None]
         with np.errstate(invalid="ignore", over="ignore", divide="ignore", under="ignore"):
-            x[ok] = _umath_linalg.solve(scaled[ok], (d * b)[ok][:, :, None], signature="dd->d")[:, :, 0] * d[ok]
+            x[ok] = _stacked(lambda: _umath_linalg.solve(left, right, signature="dd->d"), np.linalg.solve, left,
+                             right)[:, :, 0] * d[ok]
     return x, ok & np.isfinite(x).all(axis=1)
+
+
+def _stacked(kernel, one, *stacks: np.ndarray) -> np.ndarray:
+    """numpy's stacked kernel (NaN where a matrix fails), or, should this numpy lack it, ``one`` applied matrix by
+    matrix with NaN where it raises."""
+    if _umath_linalg is not None:
+        try:
+            return kernel()
+        except (AttributeError, TypeError):  # pragma: no cover - depends on the numpy installed
+            pass
+    out = []
+    for parts in zip(*stacks):
+        try:
+            out.append(one(*parts))
+        except np.linalg.LinAlgError:
+            out.append(np.full(np.broadcast_shapes(*(p.shape for p in parts[-1:])), np.nan))
+    return np.array(out)

@@ -147,3 +147,23 @@ def test_stack_factorisations_mark_the_matrices_that_fail_and_solve_the_others_a
         assert np.isnan(x[~found]).all()
         for r in np.flatnonzero(found):
             np.testing.assert_allclose(x[r], np.linalg.solve(A[r], b[r]), rtol=1e-9)
+
+
+def test_the_one_matrix_fallback_gives_what_the_stacked_kernels_give(monkeypatch):
+    # the stacked kernels are numpy internals: without them the factors and solutions come one matrix at a time
+    import cfa_tool.estimation.stacked as stacked
+
+    rng = np.random.default_rng(1)
+    A = rng.normal(size=(5, 4, 4))
+    A = A @ A.transpose(0, 2, 1)
+    A[2] = -A[2]  # not positive definite
+    b = rng.normal(size=(5, 4))
+    kernel_factor, kernel_ok = stacked._cholesky(A.copy())
+    kernel_x, kernel_found = stacked._solve(A.copy(), b)
+    monkeypatch.setattr(stacked, "_umath_linalg", None)
+    factor, ok = stacked._cholesky(A.copy())
+    x, found = stacked._solve(A.copy(), b)
+    assert ok.tolist() == kernel_ok.tolist() == [True, True, False, True, True]
+    assert found.tolist() == kernel_found.tolist()
+    np.testing.assert_allclose(factor[ok], kernel_factor[ok], rtol=1e-12)
+    np.testing.assert_allclose(x[found], kernel_x[found], rtol=1e-12)
