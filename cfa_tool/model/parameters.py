@@ -30,7 +30,7 @@ from typing import Callable
 import numpy as np
 
 from cfa_tool.suggest import close_names
-from cfa_tool.errors import ModelError
+from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.language.checks import all_refs, exogenous_factors
 from cfa_tool.language.spec import INVARIANCE_CLASSES, ParameterRef, Spec, equality_words
 
@@ -493,6 +493,15 @@ def group_statement(spec: Spec) -> str | None:
     if spec.invariant:
         return f"{', '.join(equality_words(spec.invariant))} equal across groups"
     return None
+
+
+def one_group_only(spec: Spec, what: str) -> None:
+    """A model with statements that need groups cannot be used where there are none (simulation, power, the
+    resampling commands): an error that says so without advice about options these commands do not have."""
+    statement = group_statement(spec)
+    if statement is not None:
+        raise OptionError(f"{what}, and the model has {statement}, which needs groups: remove it for this command "
+                          f"(fit, invariance and align take a group column)")
 
 
 def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, means: bool) -> None:

@@ -38,6 +38,7 @@ import numpy as np
 import pandas as pd
 from scipy import linalg
 
+from cfa_tool.model.parameters import one_group_only
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
@@ -496,6 +497,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     replications, seed = bootstrap_options(replications, seed, workers)
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
+    one_group_only(spec, "the bootstrap resamples one group's rows")
     without_exploratory_blocks(spec, "bootstrap", "it resamples the parameters, and a block's rotated loadings are "
                                                   "not among them")
     design = design_columns(weights, cluster, strata, weight_kind)

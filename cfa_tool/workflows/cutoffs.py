@@ -29,6 +29,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool import options as check
+from cfa_tool.model.parameters import one_group_only
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import DataError, EstimationError, OptionError
@@ -328,6 +329,7 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     replications, seed = cutoff_options(replications, seed, workers)
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
+    one_group_only(spec, "the cutoffs are simulated for one group's model")
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
             result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)

@@ -78,8 +78,7 @@ def required_sample_size(df: int, rmsea_null: float, rmsea_alt: float, power: fl
 def model_degrees_of_freedom(spec) -> tuple[int, int]:
     """(degrees of freedom, indicators) of a model's covariance structure in one group:
     p(p + 1)/2 - q (Joreskog 1969)."""
-    from cfa_tool.model.parameters import build_parameter_table
-    from cfa_tool.workflows.simulation import one_group_only
+    from cfa_tool.model.parameters import build_parameter_table, one_group_only
 
     one_group_only(spec, "the power of the RMSEA test is computed for one group's model")
     table = build_parameter_table(spec)

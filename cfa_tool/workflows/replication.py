@@ -35,6 +35,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (load_frame, load_spec, make_options, odd_value_problems, odd_values_named,
                                       refit_missing_handling, screened)
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
@@ -248,6 +249,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too);
     ``sheet`` and ``missing_codes`` apply to both files, as for ``fit``."""
     spec = load_spec(model)
+    one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator, options if missing is None else {**options, "missing": missing})
     if _same_file(calibration, validation):
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
@@ -277,6 +279,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse."""
     seed = check.seed(seed)
     spec = load_spec(model)
+    one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
                                                      options if missing is None else {**options, "missing": missing})
     frame, source = load_frame(data, sheet, missing_codes)

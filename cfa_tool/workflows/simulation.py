@@ -22,6 +22,7 @@ from enum import Enum
 
 import numpy as np
 import pandas as pd
+from cfa_tool.model.parameters import one_group_only
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.numerics import distributions as dist
 
@@ -309,17 +310,6 @@ def _fitted_means(model: StructuredModel, theta: np.ndarray, value_of: dict, pay
     if not np.isfinite(means).all():
         raise OptionError("the earlier fit's item means are not finite numbers")
     return means, ItemMeans.SAMPLE_MEANS
-
-
-def one_group_only(spec: Spec, what: str) -> None:
-    """A model with statements that need groups cannot be used where there are none (simulation, power): an error
-    that says so without advice about options these commands do not have."""
-    from cfa_tool.model.parameters import group_statement
-
-    statement = group_statement(spec)
-    if statement is not None:
-        raise OptionError(f"{what}, and the model has {statement}, which needs groups: remove it for this command "
-                          f"(fit, invariance and align take a group column)")
 
 
 def population_from_spec(spec: Spec, fitted=None) -> Population:
