@@ -3,33 +3,36 @@ carries."""
 
 from __future__ import annotations
 
+import sys
+
 from cfa_tool.errors import OptionError
 from cfa_tool.reporting.document import Report, ResultKind
 
 
-def kind_of(result: object) -> ResultKind:
-    """The command whose result ``result`` is."""
-    from cfa_tool.pipeline.results import CheckResult, FitResult
-    from cfa_tool.workflows.alignment import AlignmentResult
-    from cfa_tool.workflows.bootstrap import BootstrapResult
-    from cfa_tool.workflows.compare import Comparison
-    from cfa_tool.workflows.cutoffs import CutoffResult
-    from cfa_tool.workflows.explore import ExploreResult
-    from cfa_tool.workflows.factor_scores import ScoreResult
-    from cfa_tool.workflows.invariance import InvarianceResult
-    from cfa_tool.workflows.montecarlo import MonteCarloPower, PowerCurve
-    from cfa_tool.workflows.power import PowerResult
-    from cfa_tool.workflows.replication import Replication, Replications
-    from cfa_tool.workflows.simulation import SimulatedData
+# the classes of each command's result: (kind, module, class names), the fit's first
+_RESULT_CLASSES = (
+    (ResultKind.FIT, "cfa_tool.pipeline.results", ("FitResult",)),
+    (ResultKind.CHECK, "cfa_tool.pipeline.results", ("CheckResult",)),
+    (ResultKind.COMPARE, "cfa_tool.workflows.compare", ("Comparison",)),
+    (ResultKind.INVARIANCE, "cfa_tool.workflows.invariance", ("InvarianceResult",)),
+    (ResultKind.REPLICATE, "cfa_tool.workflows.replication", ("Replication", "Replications")),
+    (ResultKind.BOOTSTRAP, "cfa_tool.workflows.bootstrap", ("BootstrapResult",)),
+    (ResultKind.CUTOFFS, "cfa_tool.workflows.cutoffs", ("CutoffResult",)),
+    (ResultKind.POWER, "cfa_tool.workflows.power", ("PowerResult",)),
+    (ResultKind.POWER_SIMULATION, "cfa_tool.workflows.montecarlo", ("MonteCarloPower", "PowerCurve")),
+    (ResultKind.SIMULATE, "cfa_tool.workflows.simulation", ("SimulatedData",)),
+    (ResultKind.SCORES, "cfa_tool.workflows.factor_scores", ("ScoreResult",)),
+    (ResultKind.EXPLORE, "cfa_tool.workflows.explore", ("ExploreResult",)),
+    (ResultKind.ALIGN, "cfa_tool.workflows.alignment", ("AlignmentResult",)),
+)
 
-    for kind, classes in ((ResultKind.FIT, (FitResult,)), (ResultKind.CHECK, (CheckResult,)),
-                          (ResultKind.COMPARE, (Comparison,)), (ResultKind.INVARIANCE, (InvarianceResult,)),
-                          (ResultKind.REPLICATE, (Replication, Replications)), (ResultKind.BOOTSTRAP, (BootstrapResult,)),
-                          (ResultKind.CUTOFFS, (CutoffResult,)), (ResultKind.POWER, (PowerResult,)),
-                          (ResultKind.POWER_SIMULATION, (MonteCarloPower, PowerCurve)), (ResultKind.SIMULATE, (SimulatedData,)),
-                          (ResultKind.SCORES, (ScoreResult,)), (ResultKind.EXPLORE, (ExploreResult,)),
-                          (ResultKind.ALIGN, (AlignmentResult,))):
-        if isinstance(result, classes):
+
+def kind_of(result: object) -> ResultKind:
+    """The command whose result ``result`` is.  A module not yet imported holds no class of ``result``, so it is
+    passed over, not imported (the workflows' modules would double the start of ``cfa-tool fit``)."""
+    for kind, name, classes in _RESULT_CLASSES:
+        module = sys.modules.get(name)
+        if module is not None and isinstance(result, tuple(getattr(module, c) for c in classes)):
             return kind
     raise TypeError(f"no report for a {type(result).__name__}")
 

@@ -1,0 +1,59 @@
+"""The start of ``cfa-tool fit``: the fit's report imports no workflow, exploratory analysis or scoring module
+(finding which command a result belongs to once imported them all), and a run of the program collects cyclic
+garbage after every 200,000 new objects, while a caller that passes the arguments keeps its own setting."""
+
+from __future__ import annotations
+
+import gc
+import subprocess
+import sys
+from pathlib import Path
+
+from cfa_tool import cli
+from cfa_tool.reporting.document import ResultKind
+from cfa_tool.reporting.reports import _RESULT_CLASSES, kind_of
+
+DATA = Path(__file__).resolve().parents[1] / "datasets" / "holzinger_swineford_1939.csv"
+MODEL = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+
+# the program as ``cfa-tool fit`` runs it (arguments from the command line), then what it loaded and the
+# collector's setting
+CHILD = """
+import gc, sys
+from cfa_tool import cli
+sys.argv = ["cfa-tool", "fit", sys.argv[1], "--data", sys.argv[2]]
+code = cli.main()
+print(code, gc.get_threshold()[0], sorted(m for m in sys.modules if m.startswith("cfa_tool.")), file=sys.stderr)
+"""
+
+
+def _run_fit(tmp_path: Path) -> tuple[int, int, list[str]]:
+    model = tmp_path / "three.cfa"
+    model.write_text(MODEL)
+    done = subprocess.run([sys.executable, "-c", CHILD, str(model), str(DATA)], capture_output=True, text=True,
+                          check=True)
+    assert "Model file:" in done.stdout  # the report was shown
+    code, threshold, loaded = done.stderr.strip().splitlines()[-1].split(" ", 2)
+    return int(code), int(threshold), eval(loaded)  # noqa: S307 - a list of names printed by the child above
+
+
+def test_a_fit_from_the_command_line_imports_only_what_its_report_uses(tmp_path):
+    code, threshold, loaded = _run_fit(tmp_path)
+    assert code == 0
+    for package in ("cfa_tool.workflows", "cfa_tool.scoring", "cfa_tool.exploration.analysis"):
+        assert not [m for m in loaded if m == package or m.startswith(package + ".")], package
+    assert threshold == cli.COLLECT_EVERY
+
+
+def test_a_caller_that_passes_the_arguments_keeps_its_collector_setting(tmp_path, capsys):
+    before = gc.get_threshold()
+    model = tmp_path / "three.cfa"
+    model.write_text(MODEL)
+    assert cli.main(["fit", str(model), "--data", str(DATA)]) == 0
+    assert "Model file:" in capsys.readouterr().out
+    assert gc.get_threshold() == before
+
+
+def test_every_command_has_one_kind_and_the_fit_is_found_first(hs_three):
+    assert [kind for kind, _, _ in _RESULT_CLASSES] == list(ResultKind)
+    assert _RESULT_CLASSES[0][0] is ResultKind.FIT and kind_of(hs_three) is ResultKind.FIT
