@@ -36,7 +36,7 @@ from scipy import optimize
 
 from cfa_tool.numerics import distributions as dist
 
-from cfa_tool.data.moments import numeric_columns
+from cfa_tool.data.moments import numeric_columns, row_numbers
 from cfa_tool.data.sample_design import DesignColumns, RowDesign, row_design
 from cfa_tool.errors import DataError, printable
 from cfa_tool.method import WeightKind
@@ -234,6 +234,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
     covariance instead of the covariance (a statistic on a part of the rows scales its influence by the
     weight of all rows over the weight of that part)."""
     values = numeric_columns(frame, names, source)
+    check_whole_answers(values, frame, names, source, continuous, where)
     answered = ~np.isnan(values)
     keep = answered.any(axis=1) if pairwise else answered.all(axis=1)
     data = values[keep]
@@ -395,6 +396,23 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
 NEAR_DUPLICATE = 0.995  # a correlation this close to 1 in size means two items answer alike (the search stops at .999)
 
 
+def check_whole_answers(values: np.ndarray, frame: pd.DataFrame, names: tuple[str, ...], source: str,
+                        continuous: frozenset[str] = frozenset(), where: str = "") -> None:
+    """The answers of an ordinal item are category codes, whole numbers: a fractional answer (2.5, a typing
+    error or an average) would otherwise become a category of its own, with a threshold of its own."""
+    fractional = ~np.isnan(values) & (values != np.round(values))
+    if not fractional.any():
+        return
+    for row, j in np.argwhere(fractional):
+        if names[j] in continuous:
+            continue
+        others = int(fractional[:, j].sum()) - 1
+        more = f" (and {others} other fractional {'answer' if others == 1 else 'answers'})" if others else ""
+        raise DataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {values[row, j]:g} in "
+                        f"data row {row_numbers(frame)[row]}{more}; the answers of an ordinal item are category codes "
+                        f"(whole numbers): correct the value, or analyse the item as continuous")
+
+
 def _categories(values) -> str:
     text = [f"{v:g}" for v in values]
     return f"category {text[0]}" if len(text) == 1 else "categories " + ", ".join(text)
@@ -407,6 +425,7 @@ def shared_levels(frames: list[pd.DataFrame], names: tuple[str, ...], source: st
     seen: dict[str, set] = {name: set() for name in names}
     for frame in frames:
         values = numeric_columns(frame, names, source)
+        check_whole_answers(values, frame, names, source)
         if not pairwise:
             values = values[~np.isnan(values).any(axis=1)]  # the rows listwise deletion keeps
         for j, name in enumerate(names):
