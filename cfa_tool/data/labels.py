@@ -68,3 +68,24 @@ def _listed(merged: list[tuple[str, list[str]]], shown: int) -> str:
     listed = "; ".join(f"{' and '.join(repr(printable(t)) for t in texts)} as '{printable(label)}'"
                        for label, texts in merged[:shown])
     return listed + (f"; and {len(merged) - shown} more" if len(merged) > shown else "")
+
+
+def labelled_codes(frame: pd.DataFrame, value_labels: dict, items=()) -> list[str]:
+    """Columns of ``frame`` other than ``items`` whose every code has a value label (SPSS, Stata): codes of
+    categories, such as a department coded 1..5 and labelled 'Dispatch', 'Fleet', ...; a column with unlabelled
+    codes (weights, say) is not one."""
+    out = []
+    for column, labels in value_labels.items():
+        if column in items or column not in frame.columns or not labels:
+            continue
+        values = frame[column].dropna()
+        if len(values) and values.isin(list(labels)).all():
+            out.append(column)
+    return out
+
+
+def own_labels(column: str, value_labels: dict) -> bool:
+    """Whether no other column has the value labels of ``column``: the items of a questionnaire share their answer
+    scale's labels ('Strongly disagree' ... 'Strongly agree'), a code column's labels (departments) are its own."""
+    labels = value_labels.get(column)
+    return bool(labels) and not any(other != column and theirs == labels for other, theirs in value_labels.items())

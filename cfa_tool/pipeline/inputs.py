@@ -12,7 +12,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.groups import split_moments
-from cfa_tool.data.labels import label_notes
+from cfa_tool.data.labels import label_notes, labelled_codes
 from cfa_tool.data.matching import check_columns, check_declared_ranges
 from cfa_tool.data.moments import SampleMoments, item_columns, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.odd_values import odd_values
@@ -168,13 +168,7 @@ def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> tuple[pd
     """Columns other than the model's items whose every code has a value label (SPSS, Stata), as those labels:
     a group column of codes 1..5 labelled 'Dispatch', 'Fleet', ... gives groups named so.  Items keep their codes
     (the answers are numbers); a column with unlabelled codes (weights, say) stays as it is."""
-    labelled = []
-    for column, labels in value_labels.items():
-        if column in items or column not in frame.columns or not labels:
-            continue
-        values = frame[column].dropna()
-        if len(values) and values.isin(list(labels)).all():
-            labelled.append(column)
+    labelled = labelled_codes(frame, value_labels, items)
     if not labelled:
         return frame, []
     frame = frame.copy()
