@@ -301,8 +301,10 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             empty = [v for v in item_levels if v not in seen]
             if empty:
                 raise DataError(f"{source}{where}: no one answered {_categories(empty)} on ordinal item '{name}', which "
-                                f"other groups used; thresholds cannot be compared across groups with an empty category "
-                                f"(merge it with a neighbouring category in every group, or drop the item)")
+                                f"other groups used; thresholds cannot be compared across groups with an empty category. "
+                                f"The tool does not merge categories: in a copy of the data file, recode "
+                                f"'{printable(name)}' ({_merged_into(empty, seen)}) in every group; or drop the item from the "
+                                f"model, or leave this group out with a row filter (--keep)")
         else:
             item_levels = seen
         if len(item_levels) < 2:
@@ -411,6 +413,18 @@ def check_whole_answers(values: np.ndarray, frame: pd.DataFrame, names: tuple[st
         raise DataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {values[row, j]:g} in "
                         f"data row {row_numbers(frame)[row]}{more}; the answers of an ordinal item are category codes "
                         f"(whole numbers): correct the value, or analyse the item as continuous")
+
+
+def _merged_into(empty, seen) -> str:
+    """'1 as 2, 5 as 4': each empty category recoded as its nearest category that was answered (the one towards the
+    middle of the scale when two are as near)."""
+    seen = np.asarray(seen, dtype=float)
+    middle = (seen.min() + seen.max()) / 2
+    pairs = []
+    for v in empty:
+        nearest = min(seen, key=lambda s: (abs(s - v), abs(s - middle)))
+        pairs.append(f"{v:g} as {nearest:g}")
+    return ", ".join(pairs)
 
 
 def _categories(values) -> str:
