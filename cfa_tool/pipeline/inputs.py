@@ -763,8 +763,15 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     complete = int(every_item.sum()) - odd_complete
     empty = int((~answered.any(axis=1)).sum())
     coverage = {name: float(v) for name, v in answered.mean(axis=0).items()} if len(answered) else {}
+    counted = None
+    if design is not None and design.kind is WeightKind.FREQUENCY:  # the rows as the fit counts them (its N)
+        w = pd.to_numeric(frame.loc[answered.index, design.weights]).to_numpy(dtype=float)
+        whole = every_item & ~np.isin(row_numbers(answered), list(odd_rows)) if odd_rows else every_item
+        none = ~answered.any(axis=1).to_numpy()
+        counted = (float(w.sum()), float(w[whole].sum()), float(w[~whole & ~every_item & ~none].sum()),
+                   float(w[none].sum()))
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - odd_complete - empty, empty,
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None, tuple(notes),
-                       odd_value_problems(loaded), len(frame) - len(answered), odd_complete)
+                       odd_value_problems(loaded), len(frame) - len(answered), odd_complete, counted)
 
