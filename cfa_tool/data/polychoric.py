@@ -403,16 +403,16 @@ def check_whole_answers(values: np.ndarray, frame: pd.DataFrame, names: tuple[st
     """The answers of an ordinal item are category codes, whole numbers: a fractional answer (2.5, a typing
     error or an average) would otherwise become a category of its own, with a threshold of its own."""
     fractional = ~np.isnan(values) & (values != np.round(values))
+    if continuous:
+        fractional[:, [j for j, name in enumerate(names) if name in continuous]] = False
     if not fractional.any():
         return
-    for row, j in np.argwhere(fractional):
-        if names[j] in continuous:
-            continue
-        others = int(fractional[:, j].sum()) - 1
-        more = f" (and {others} other fractional {'answer' if others == 1 else 'answers'})" if others else ""
-        raise DataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {values[row, j]:g} in "
-                        f"data row {row_numbers(frame)[row]}{more}; the answers of an ordinal item are category codes "
-                        f"(whole numbers): correct the value, or analyse the item as continuous")
+    row, j = np.argwhere(fractional)[0]  # the first row that has one
+    others = int(fractional[:, j].sum()) - 1
+    more = f" (and {others} other fractional {'answer' if others == 1 else 'answers'})" if others else ""
+    raise DataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {values[row, j]:g} in "
+                    f"data row {row_numbers(frame)[row]}{more}; the answers of an ordinal item are category codes "
+                    f"(whole numbers): correct the value, or analyse the item as continuous")
 
 
 def _merged_into(empty, seen) -> str:
@@ -432,14 +432,15 @@ def _categories(values) -> str:
     return f"category {text[0]}" if len(text) == 1 else "categories " + ", ".join(text)
 
 
-def shared_levels(frames: list[pd.DataFrame], names: tuple[str, ...], source: str,
-                  pairwise: bool = False) -> dict[str, tuple[float, ...]]:
+def shared_levels(frames: list[pd.DataFrame], names: tuple[str, ...], source: str, pairwise: bool = False,
+                  continuous: frozenset[str] = frozenset()) -> dict[str, tuple[float, ...]]:
     """The categories of each ordinal item over all groups (each group must then use every one), among the
-    rows analysed: every answer with ``pairwise``, the complete rows otherwise."""
+    rows analysed: every answer with ``pairwise``, the complete rows otherwise (``continuous`` items: not checked
+    for whole-number answers; their values are not categories)."""
     seen: dict[str, set] = {name: set() for name in names}
     for frame in frames:
         values = numeric_columns(frame, names, source)
-        check_whole_answers(values, frame, names, source)
+        check_whole_answers(values, frame, names, source, continuous)
         if not pairwise:
             values = values[~np.isnan(values).any(axis=1)]  # the rows listwise deletion keeps
         for j, name in enumerate(names):

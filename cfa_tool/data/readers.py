@@ -442,9 +442,9 @@ def _keep_number_spellings(frame: pd.DataFrame, raw: _RawCells) -> None:
 def _check_dotted_thousands(frame: pd.DataFrame, raw: _RawCells, header: list[str], path: Path,
                             notes: list[str] | None) -> None:
     """In a file with decimal commas a '.' is ambiguous when it stands before exactly three digits: '1.083' may be
-    1083 written with a thousands separator (as decimal-comma locales write it) or 1.083.  A column whose
-    dotted values are all numbers with three decimals is an error when it also holds whole numbers of 100 or more ('850' beside
-    '1.083': the reading cannot be decided), and gets a note when the file writes other decimals with commas."""
+    1083 written with a thousands separator (as decimal-comma locales write it) or 1.083.  A column whose dotted
+    values are all numbers with three decimals is an error when it also holds whole numbers of 100 or more ('850'
+    beside '1.083': the reading cannot be decided), and gets a note when the file writes other decimals with commas."""
     if not _THOUSANDS_DOT.search(raw.body):
         return
     commas = re.search(r"\d,\d", raw.body) is not None
