@@ -773,5 +773,6 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - odd_complete - empty, empty,
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None, tuple(notes),
-                       odd_value_problems(loaded), len(frame) - len(answered), odd_complete, counted)
+                       odd_value_problems(loaded), len(frame) - len(answered), odd_complete,
+                       counted=counted)
 
