@@ -2,7 +2,9 @@
 
 b1 = (1/N^2) sum_i sum_j (z_i' S^-1 z_j)^3, with N b1 / 6 ~ chi-square on p(p+1)(p+2)/6 df;
 b2 = (1/N) sum_i (z_i' S^-1 z_i)^2, with (b2 - p(p+2)) / sqrt(8 p (p+2) / N) ~ N(0, 1)
-under multivariate normality (S with divisor N; Mardia 1970, 1974).
+under multivariate normality (S with divisor N; Mardia 1970, 1974).  Under frequency weights w_i (row i stands for
+w_i rows) the sums run over the rows each counted w_i times, N = sum w_i: the tests of the data with every row
+repeated by its weight (means and S weighted, b1 = (1/N^2) sum_ij w_i w_j (.)^3, b2 = (1/N) sum_i w_i (.)^2).
 
 The double sum never holds an N x N or N x p^2 array at once.  With whitened rows y_i it is either
 sum_abc T_abc^2 where T_abc = sum_i y_ia y_ib y_ic (N p^3 / 2 operations, as T is symmetric: its rows T_ab. for
@@ -49,13 +51,33 @@ def whitened_rows(rows: np.ndarray) -> tuple[np.ndarray, float]:
     return solve_triangular(L, Z.T, lower=True, check_finite=False).T, 2.0 * float(np.log(L.diagonal()).sum())
 
 
-def mardia(rows: np.ndarray, whitened: tuple[np.ndarray, float] | None = None) -> Normality:
-    """Mardia's tests of ``rows``; ``whitened`` is :func:`whitened_rows` of them when the caller has it."""
-    n, p = rows.shape
-    Y = (whitened_rows(rows) if whitened is None else whitened)[0]
-    b1 = _sum_of_cubed_products(Y) / (n * n)
-    d2 = np.einsum("ij,ij->i", Y, Y)
-    b2 = float(np.mean(d2**2))
+def _frequency_whitened(rows: np.ndarray, frequencies: np.ndarray) -> np.ndarray:
+    """:func:`whitened_rows` of the rows repeated by their frequency weights, one row each: the weighted mean and
+    covariance (divisor the sum of the weights)."""
+    total = frequencies.sum()
+    Z = rows - frequencies @ rows / total
+    L = np.linalg.cholesky((Z * frequencies[:, None]).T @ Z / total)
+    return solve_triangular(L, Z.T, lower=True, check_finite=False).T
+
+
+def mardia(rows: np.ndarray, whitened: tuple[np.ndarray, float] | None = None,
+           frequencies: np.ndarray | None = None) -> Normality:
+    """Mardia's tests of ``rows``; ``whitened`` is :func:`whitened_rows` of them when the caller has it;
+    ``frequencies``: frequency weights, each row counted as often as its weight (N their sum; ``whitened`` unused)."""
+    p = rows.shape[1]
+    if frequencies is not None:
+        frequencies = np.asarray(frequencies, dtype=float)
+        n = float(frequencies.sum())
+        Y = _frequency_whitened(rows, frequencies)
+        b1 = _sum_of_cubed_products(Y, frequencies) / (n * n)
+        d2 = np.einsum("ij,ij->i", Y, Y)
+        b2 = float(frequencies @ d2**2 / n)
+    else:
+        n = rows.shape[0]
+        Y = (whitened_rows(rows) if whitened is None else whitened)[0]
+        b1 = _sum_of_cubed_products(Y) / (n * n)
+        d2 = np.einsum("ij,ij->i", Y, Y)
+        b2 = float(np.mean(d2**2))
     df = p * (p + 1) * (p + 2) // 6
     chi = n * b1 / 6.0
     expected = p * (p + 2.0)
@@ -63,8 +85,9 @@ def mardia(rows: np.ndarray, whitened: tuple[np.ndarray, float] | None = None) -
     return Normality(b1, chi, df, float(dist.chi2_sf(chi, df)), b2, expected, float(z), float(2 * dist.norm_sf(abs(z))))
 
 
-def _sum_of_cubed_products(Y: np.ndarray) -> float:
-    """sum_ij (y_i' y_j)^3, by the third-moment tensor or by blocks of the Gram matrix, whichever is cheaper."""
+def _sum_of_cubed_products(Y: np.ndarray, w: np.ndarray | None = None) -> float:
+    """sum_ij (y_i' y_j)^3 (times w_i w_j with frequency weights ``w``), by the third-moment tensor or by blocks of
+    the Gram matrix, whichever is cheaper."""
     n, p = Y.shape
     total = 0.0
     if n < p * p:  # Gram blocks (pairs of row blocks, off-diagonal blocks counted twice): timed faster here
@@ -73,11 +96,14 @@ def _sum_of_cubed_products(Y: np.ndarray) -> float:
             stop = min(n, start + size)
             G = Y[start:stop] @ Y[start:].T
             G *= G * G
+            if w is not None:
+                G *= w[start:stop, None] * w[None, start:]
             total += 2.0 * float(G.sum()) - float(G[:, : stop - start].sum())
         return total
     columns = np.ascontiguousarray(Y.T)
+    weighted = columns if w is None else columns * w
     for a in range(p):  # T_ab. for b >= a (T is symmetric: the rows b > a stand for T_ba. as well)
-        T = (columns[a:] * columns[a]) @ Y
+        T = (columns[a:] * weighted[a]) @ Y
         squares = np.einsum("ij,ij->i", T, T)
         total += 2.0 * float(squares.sum()) - float(squares[0])
     return total

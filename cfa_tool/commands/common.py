@@ -206,9 +206,29 @@ def inputs_of(args: argparse.Namespace) -> list[str]:
     return [n for n in names if n]
 
 
+HALVES_FILE = "--halves-file"
+
+
+def add_halves_file(parser, asked: str) -> None:
+    """The option that saves which data rows went to which random half (``asked``: what makes the halves)."""
+    parser.add_argument(HALVES_FILE, metavar="FILE.csv",
+                        help=f"with {asked}: write which data rows went to which half, a CSV of the data-row numbers "
+                             f"(1 = the first row after the header) and the half; an existing file is never replaced")
+
+
+def halves_file(args: argparse.Namespace, halves: list[tuple[str, tuple[int, ...]]]) -> list[tuple[str, object, str]]:
+    """(option, content, message) of --halves-file when asked: one line per row split, in the order of the rows,
+    'data_row,half' (``halves``: each half's name and its data-row numbers)."""
+    if not getattr(args, "halves_file", None):
+        return []
+    rows = sorted((row, name) for name, numbers in halves for row in numbers)
+    text = "data_row,half\n" + "".join(f"{row},{name}\n" for row, name in rows)
+    return [(HALVES_FILE, text, f"The rows of each half written to {args.halves_file}")]
+
+
 def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
     """Every output of the run checked before any work (see cfa_tool.output_files): the checks of
-    :func:`check_files`, and those of the diagram, simulated rows and picture resolution."""
+    :func:`check_files`, and those of the diagram, simulated rows, the halves' rows and picture resolution."""
     from cfa_tool.reporting.picture import PictureFormat, picture_format, png_converter, require_converter
 
     diagram = getattr(args, "diagram", None)
@@ -216,7 +236,10 @@ def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:
         require_converter(picture_format("--diagram", diagram))
     output = getattr(args, "output", None)
     require_suffix("--output", output, ".csv", "the simulated rows")
-    targets = check_files(args, [], inputs, never_replaced=("--output",))
+    halves = getattr(args, "halves_file", None)
+    require_suffix(HALVES_FILE, halves, ".csv", "the rows of the halves")
+    targets = check_files(args, [(HALVES_FILE, halves)] if halves else [], inputs,
+                          never_replaced=("--output", HALVES_FILE))
     if hasattr(args, "dpi"):
         pictures = bool(getattr(args, "docx", None)) or (bool(diagram) and picture_format("--diagram", diagram)
                                                            is PictureFormat.PNG)

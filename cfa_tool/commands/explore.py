@@ -6,8 +6,8 @@ from __future__ import annotations
 import argparse
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import add_report_options, check_files, console, docx_file, report_files, require_suffix, \
-    notice_on_standard_error, say, table_files, write_reports, write_tables
+from cfa_tool.commands.common import HALVES_FILE, add_halves_file, add_report_options, check_files, console, docx_file, \
+    halves_file, report_files, require_suffix, notice_on_standard_error, say, table_files, write_reports, write_tables
 
 
 def add_parser(sub) -> None:
@@ -35,6 +35,7 @@ def add_parser(sub) -> None:
                    help="write the draft model file here (.cfa); an existing file is never replaced")
     p.add_argument("--split", metavar="SEED", type=int,
                    help="explore one random half of the rows (seed SEED) and fit the draft model on the other half")
+    add_halves_file(p, "--split")
     p.add_argument("--replications", type=int, default=100, help="random data sets of parallel analysis (default 100)")
     p.add_argument("--seed", type=int, default=0, help="seed of parallel analysis and of the rotation's random starts "
                                                        "(default 0)")
@@ -46,20 +47,29 @@ def add_parser(sub) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    from cfa_tool.errors import OptionError
     from cfa_tool.reporting.reports import report_of
     from cfa_tool.language.parser import MODEL_SUFFIX
     from cfa_tool.reporting.explore_report import explore_html_report, explore_markdown, render_explore
     from cfa_tool.workflows.explore import explore
 
     require_suffix("--draft", args.draft, MODEL_SUFFIX, "model files")
-    outputs = [("--draft", args.draft), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown)]
-    check_files(args, outputs, [args.data] + ([args.target] if args.target else []), never_replaced=("--draft",))
+    require_suffix(HALVES_FILE, args.halves_file, ".csv", "the rows of the halves")
+    if args.halves_file and args.split is None:
+        raise OptionError("--halves-file saves the random halves of --split SEED, and this run explores every row")
+    outputs = [("--draft", args.draft), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown),
+               (HALVES_FILE, args.halves_file)]
+    check_files(args, outputs, [args.data] + ([args.target] if args.target else []),
+                never_replaced=("--draft", HALVES_FILE))
     rotation = args.rotation or ("target" if args.target else "quartimin")
     result = explore(args.data, items=args.items, factors=args.factors, rotation=rotation,
                      extraction=args.extraction, ordinal=O.ordinal_arg(args.ordinal), split=args.split,
                      sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
                      replications=args.replications, seed=args.seed, target=args.target)
     files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
+    if result.split is not None:
+        files += halves_file(args, [("exploration", result.split.exploration_rows),
+                                    ("confirmation", result.split.confirmation_rows)])
     report = report_of(result)  # the JSON's report, the Word document and the tables (one report model)
     files += report_files(args, result, explore_html_report, explore_markdown, report)
     files += docx_file(args, report)

@@ -6,7 +6,7 @@ import argparse
 from pathlib import Path
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import add_report_options, check_output, emit, inputs_of
+from cfa_tool.commands.common import add_halves_file, add_report_options, check_output, emit, halves_file, inputs_of
 
 
 def add_parser(sub) -> None:
@@ -16,6 +16,7 @@ def add_parser(sub) -> None:
     rep.add_argument("--validation", metavar="FILE", help="new data the estimates are checked in")
     rep.add_argument("--data", metavar="FILE", help="one data file to split at random into two halves")
     rep.add_argument("--seed", type=int, default=None, help="seed of the random split of --data (default 1)")
+    add_halves_file(rep, "--data")
     O.add_data_options(rep, filters=False)
     O.add_ordinal_options(rep)
     O.add_incomplete_rows_option(rep, O.REFITS_AS_THE_FIT)
@@ -36,6 +37,9 @@ def run(args: argparse.Namespace) -> int:
         raise OptionError("give either --data (split-half) or --calibration and --validation, not both")
     ordinal = {"ordinal": O.ordinal_arg(args.ordinal), "ordinal_estimator": args.ordinal_estimator,
                "missing": args.missing, "sheet": args.sheet, "missing_codes": args.missing_codes}
+    if args.halves_file and not args.data:
+        raise OptionError("--halves-file saves the random halves of one data file (--data), and --calibration and "
+                          "--validation are not split")
     if args.data:
         pair = split_half(model, args.data, seed=1 if args.seed is None else args.seed, **ordinal)
     elif args.seed is not None:
@@ -45,4 +49,6 @@ def run(args: argparse.Namespace) -> int:
         pair = (replicate(model, args.calibration, args.validation, **ordinal),)
     else:
         raise OptionError("give --calibration and --validation files, or --data FILE to split one data set in two halves")
-    return emit(args, Replications(tuple(pair)))
+    split = pair[0].split
+    halves = halves_file(args, [("A", split.half_a), ("B", split.half_b)]) if split is not None else []
+    return emit(args, Replications(tuple(pair)), halves)

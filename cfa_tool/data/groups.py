@@ -70,7 +70,7 @@ def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ..
     labels = group_labels(frame, column, source, reference)
     keys = frame[column].map(lambda v: None if pd.isna(v) else _label(v))
     parts = [frame.loc[(keys == label).to_numpy()] for label in labels]
-    levels = shared_levels(parts, names, source, pairwise)  # (a continuous item's are not used)
+    levels = shared_levels(parts, names, source, pairwise, continuous)  # (a continuous item's are not used)
     out = [(label, ordinal_moments(part, names, source, continuous, levels=levels,
                                    where=f" (group '{label}' of {column})", pairwise=pairwise, design=design))
            for label, part in zip(labels, parts)]

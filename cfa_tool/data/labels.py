@@ -38,11 +38,54 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
     read as one (none when no labels were merged): of the group column (every command with groups gives it through
     :func:`cfa_tool.pipeline.inputs.moments_for` or :func:`cfa_tool.pipeline.inputs.ordinal_groups`), or with
     ``part`` and ``unit`` of a cluster or strata column (cfa_tool.data.sample_design)."""
-    merged = merged_labels(frame[column].dropna())
-    if not merged:
+    values = frame[column].dropna()
+    notes = []
+    spelled = spelled_labels(frame, column, values)
+    if spelled:
+        notes.append(f"in the {part} column '{printable(column)}', numbers written in different ways were read as one "
+                     f"{unit}: {_listed(spelled, shown)}"
+                     f" (if they are different groups, give them labels that are not plain numbers, such as 'D01')")
+    merged = merged_labels(values)
+    if merged:
+        notes.append(f"in the {part} column '{printable(column)}', labels that differ only by spaces at their ends or "
+                     f"by Unicode form were read as one {unit}: {_listed(merged, shown)}")
+    return notes
+
+
+def spelled_labels(frame: pd.DataFrame, column: str, values) -> list[tuple[str, list[str]]]:
+    """Labels of a number column that the file wrote in several ways ('1', '01', '1.0'), among ``values`` (the
+    column's cells still in ``frame``), as the reader kept them (cfa_tool.data.readers, DataFrame.attrs)."""
+    from cfa_tool.data.readers import SPELLINGS
+
+    spellings = frame.attrs.get(SPELLINGS, {}).get(column)
+    if not spellings:
         return []
+    present = set(values.tolist())
+    return [(label_text(float(value)), list(texts)) for value, texts in sorted(spellings.items()) if value in present]
+
+
+def _listed(merged: list[tuple[str, list[str]]], shown: int) -> str:
     listed = "; ".join(f"{' and '.join(repr(printable(t)) for t in texts)} as '{printable(label)}'"
                        for label, texts in merged[:shown])
-    more = f"; and {len(merged) - shown} more" if len(merged) > shown else ""
-    return [f"in the {part} column '{printable(column)}', labels that differ only by spaces at their ends or by Unicode "
-            f"form were read as one {unit}: {listed}{more}"]
+    return listed + (f"; and {len(merged) - shown} more" if len(merged) > shown else "")
+
+
+def labelled_codes(frame: pd.DataFrame, value_labels: dict, items=()) -> list[str]:
+    """Columns of ``frame`` other than ``items`` whose every code has a value label (SPSS, Stata): codes of
+    categories, such as a department coded 1..5 and labelled 'Dispatch', 'Fleet', ...; a column with unlabelled
+    codes (weights, say) is not one."""
+    out = []
+    for column, labels in value_labels.items():
+        if column in items or column not in frame.columns or not labels:
+            continue
+        values = frame[column].dropna()
+        if len(values) and values.isin(list(labels)).all():
+            out.append(column)
+    return out
+
+
+def own_labels(column: str, value_labels: dict) -> bool:
+    """Whether no other column has the value labels of ``column``: the items of a questionnaire share their answer
+    scale's labels ('Strongly disagree' ... 'Strongly agree'), a code column's labels (departments) are its own."""
+    labels = value_labels.get(column)
+    return bool(labels) and not any(other != column and theirs == labels for other, theirs in value_labels.items())

@@ -36,7 +36,7 @@ from scipy import optimize
 
 from cfa_tool.numerics import distributions as dist
 
-from cfa_tool.data.moments import numeric_columns
+from cfa_tool.data.moments import numeric_columns, row_numbers
 from cfa_tool.data.sample_design import DesignColumns, RowDesign, row_design
 from cfa_tool.errors import DataError, printable
 from cfa_tool.method import WeightKind
@@ -269,6 +269,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
     covariance instead of the covariance (a statistic on a part of the rows scales its influence by the
     weight of all rows over the weight of that part)."""
     values = numeric_columns(frame, names, source)
+    check_whole_answers(values, frame, names, source, continuous, where)
     answered = ~np.isnan(values)
     keep = answered.any(axis=1) if pairwise else answered.all(axis=1)
     data = values[keep]
@@ -335,8 +336,10 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             empty = [v for v in item_levels if v not in seen]
             if empty:
                 raise DataError(f"{source}{where}: no one answered {_categories(empty)} on ordinal item '{name}', which "
-                                f"other groups used; thresholds cannot be compared across groups with an empty category "
-                                f"(merge it with a neighbouring category in every group, or drop the item)")
+                                f"other groups used; thresholds cannot be compared across groups with an empty category. "
+                                f"The tool does not merge categories: in a copy of the data file, recode "
+                                f"'{printable(name)}' ({_merged_into(empty, seen)}) in every group; or drop the item from the "
+                                f"model, or leave this group out with a row filter (--keep)")
         else:
             item_levels = seen
         if len(item_levels) < 2:
@@ -430,18 +433,49 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
 NEAR_DUPLICATE = 0.995  # a correlation this close to 1 in size means two items answer alike (the search stops at .999)
 
 
+def check_whole_answers(values: np.ndarray, frame: pd.DataFrame, names: tuple[str, ...], source: str,
+                        continuous: frozenset[str] = frozenset(), where: str = "") -> None:
+    """The answers of an ordinal item are category codes, whole numbers: a fractional answer (2.5, a typing
+    error or an average) would otherwise become a category of its own, with a threshold of its own."""
+    fractional = ~np.isnan(values) & (values != np.round(values))
+    if continuous:
+        fractional[:, [j for j, name in enumerate(names) if name in continuous]] = False
+    if not fractional.any():
+        return
+    row, j = np.argwhere(fractional)[0]  # the first row that has one
+    others = int(fractional[:, j].sum()) - 1
+    more = f" (and {others} other fractional {'answer' if others == 1 else 'answers'})" if others else ""
+    raise DataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {values[row, j]:g} in "
+                    f"data row {row_numbers(frame)[row]}{more}; the answers of an ordinal item are category codes "
+                    f"(whole numbers): correct the value, or analyse the item as continuous")
+
+
+def _merged_into(empty, seen) -> str:
+    """'1 as 2, 5 as 4': each empty category recoded as its nearest category that was answered (the one towards the
+    middle of the scale when two are as near)."""
+    seen = np.asarray(seen, dtype=float)
+    middle = (seen.min() + seen.max()) / 2
+    pairs = []
+    for v in empty:
+        nearest = min(seen, key=lambda s: (abs(s - v), abs(s - middle)))
+        pairs.append(f"{v:g} as {nearest:g}")
+    return ", ".join(pairs)
+
+
 def _categories(values) -> str:
     text = [f"{v:g}" for v in values]
     return f"category {text[0]}" if len(text) == 1 else "categories " + ", ".join(text)
 
 
-def shared_levels(frames: list[pd.DataFrame], names: tuple[str, ...], source: str,
-                  pairwise: bool = False) -> dict[str, tuple[float, ...]]:
+def shared_levels(frames: list[pd.DataFrame], names: tuple[str, ...], source: str, pairwise: bool = False,
+                  continuous: frozenset[str] = frozenset()) -> dict[str, tuple[float, ...]]:
     """The categories of each ordinal item over all groups (each group must then use every one), among the
-    rows analysed: every answer with ``pairwise``, the complete rows otherwise."""
+    rows analysed: every answer with ``pairwise``, the complete rows otherwise (``continuous`` items: not checked
+    for whole-number answers; their values are not categories)."""
     seen: dict[str, set] = {name: set() for name in names}
     for frame in frames:
         values = numeric_columns(frame, names, source)
+        check_whole_answers(values, frame, names, source, continuous)
         if not pairwise:
             values = values[~np.isnan(values).any(axis=1)]  # the rows listwise deletion keeps
         for j, name in enumerate(names):

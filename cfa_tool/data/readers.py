@@ -339,6 +339,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     _check_duplicates(header, str(path))
     widest = _check_field_counts(text, delimiter, len(header), len(header) + trailing, path, header_line)
     body_start = _offset_of_line(text, header_line)
+    decimal = _decimal_mark(text, delimiter)
     try:
         frame = pd.read_csv(
             io.StringIO(text[body_start:]),
@@ -347,7 +348,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
             names=list(range(widest)),
             usecols=list(range(len(header))),
             index_col=False,
-            decimal=_decimal_mark(text, delimiter),
+            decimal=decimal,
             skipinitialspace=True,
             na_values=["", "NA", "N/A", "NaN", "nan", "."],
             keep_default_na=False,
@@ -361,6 +362,10 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     frame.columns = header
     if len(frame) == 0:
         raise DataError(f"data file '{path}' has a header but no rows of data")
+    raw = _RawCells(text[body_start:], delimiter, widest, len(header))
+    if decimal == ",":
+        _check_dotted_thousands(frame, raw, header, path, notes)
+    _keep_number_spellings(frame, raw)
     empty = widest - len(header)
     if empty and notes is not None:
         notes.append(f"{path}: empty fields at the end of the lines (a delimiter after the last value) were ignored")
@@ -381,6 +386,86 @@ def _decimal_mark(text: str, delimiter: str) -> str:
         if re.search(r"\d,\d", sample) and not re.search(r"\d\.\d", sample):
             return ","
     return "."
+
+
+_THOUSANDS_DOT = re.compile(r"\d\.\d{3}(?!\d)")
+
+
+class _RawCells:
+    """The body of a delimited file read again as text, cell by cell as written, only when a check needs it."""
+
+    def __init__(self, body: str, delimiter: str, widest: int, width: int):
+        self.body, self._delimiter, self._widest, self._width = body, delimiter, widest, width
+        self._frame: pd.DataFrame | None = None
+
+    def frame(self) -> pd.DataFrame:
+        if self._frame is None:
+            self._frame = pd.read_csv(io.StringIO(self.body), sep=self._delimiter, header=0,
+                                      names=list(range(self._widest)), usecols=list(range(self._width)),
+                                      index_col=False, dtype=str, keep_default_na=False)
+        return self._frame
+
+
+#: a whole number written with a leading zero ('01') or with zero decimals ('1.0'): the same number as '1'
+_SPELLED_NUMBER = re.compile(r"(?:^|[,;\t|])\s*\"?[+-]?(?:0\d|\d+\.0+(?=\s*\"?(?:[,;\t|]|$)))", re.MULTILINE)
+SPELLINGS = "number_spellings"  # the key of DataFrame.attrs that keeps them (cfa_tool.data.labels reads it)
+MAX_SPELLED_VALUES = 100  # columns with more different numbers are answers or ids, not labels of groups
+
+
+def _keep_number_spellings(frame: pd.DataFrame, raw: _RawCells) -> None:
+    """Group, cluster and stratum labels are read from the numbers of their column, so '1', '01' and '1.0' are one
+    label '1': keep, for each number column of few whole values, the different ways it was written, in
+    ``frame.attrs`` (they follow the frame through filters and copies), so that the notes can say which were merged."""
+    if not _SPELLED_NUMBER.search(raw.body):
+        return
+    kept = {}
+    for position, name in enumerate(frame.columns):
+        column = frame.iloc[:, position]
+        if column.dtype.kind not in "iuf":
+            continue
+        present = column.notna().to_numpy()
+        values = column.to_numpy()[present]
+        if len(values) == 0 or not (values == values.round()).all() or len(set(values)) > MAX_SPELLED_VALUES:
+            continue
+        cells = raw.frame().iloc[:, position].to_numpy()[present]
+        pairs = set(zip(values.tolist(), (c.strip() for c in cells)))
+        if len(pairs) == len(set(values)):
+            continue
+        spelled: dict[float, set] = {}
+        for value, cell in pairs:
+            spelled.setdefault(value, set()).add(cell)
+        kept[name] = {value: tuple(sorted(cells)) for value, cells in spelled.items() if len(cells) > 1}
+    if kept:
+        frame.attrs[SPELLINGS] = kept
+
+
+def _check_dotted_thousands(frame: pd.DataFrame, raw: _RawCells, header: list[str], path: Path,
+                            notes: list[str] | None) -> None:
+    """In a file with decimal commas a '.' is ambiguous when it stands before exactly three digits: '1.083' may be
+    1083 written with a thousands separator (as decimal-comma locales write it) or 1.083.  A column whose dotted
+    values are all numbers with three decimals is an error when it also holds whole numbers of 100 or more ('850'
+    beside '1.083': the reading cannot be decided), and gets a note when the file writes other decimals with commas."""
+    if not _THOUSANDS_DOT.search(raw.body):
+        return
+    commas = re.search(r"\d,\d", raw.body) is not None
+    for position, name in enumerate(header):
+        cells = raw.frame().iloc[:, position].str.strip()
+        dotted = cells.str.contains(".", regex=False) & ~cells.isin(["."])
+        if not dotted.any() or not cells[dotted].str.fullmatch(r"[+-]?\d+\.\d{3}").all():
+            continue
+        first = int(dotted.to_numpy().argmax())
+        example = f"'{printable(cells.iloc[first])}' in data row {first + 1}"
+        whole = cells.str.fullmatch(r"[+-]?\d+") & (pd.to_numeric(cells.where(~dotted), errors="coerce").abs() >= 100)
+        if whole.any():
+            big = int(whole.to_numpy().argmax())
+            raise DataError(f"{path}: column '{printable(name)}' holds {example} beside whole numbers such as "
+                            f"'{printable(cells.iloc[big])}' (data row {big + 1}); in a file with decimal commas the '.' "
+                            f"may separate thousands ({cells.iloc[first].replace('.', '')}) or mark decimals, so the "
+                            f"values cannot be read; write the numbers without thousands separators")
+        if commas and notes is not None:
+            notes.append(f"{path}: column '{printable(name)}' was read with '.' as the decimal point ({example}), "
+                         f"though the file writes other decimals with commas; if its '.' separates thousands, write "
+                         f"the numbers without it")
 
 
 def _split_row_names(frame: pd.DataFrame, out: list | None) -> pd.DataFrame:

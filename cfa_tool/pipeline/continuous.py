@@ -295,7 +295,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 sample_mean=gm.mean,
                 implied_mean=mats[g].implied_mean() if means else None,
                 latent_covariance=mats[g].latent_covariance(),
-                normality=mardia(gm.rows, whitened) if whitened is not None else None,
+                normality=mardia(gm.rows, whitened, _frequency_weights(gm)) if whitened is not None else None,
                 **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics,
                                      spec.reverse_keyed or None, spec.method_factors | spec.exploratory_factors, whitened,
                                      likelihood.sigma_inverse(theta, g) if hasattr(likelihood, "sigma_inverse") else None),
@@ -325,6 +325,12 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                       robust=robust, estimates=estimates, modification_indices=mis, groups=group_results,
                       warnings=warnings, options=options, group_column=group_column, problems=problems,
                       parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels, model=model)
+
+
+def _frequency_weights(gm: GroupMoments) -> np.ndarray | None:
+    """The rows' frequency weights (each row counted as often as its weight, as the fit counts it), or None."""
+    design = gm.design
+    return design.weights if design is not None and design.kind is WeightKind.FREQUENCY else None
 
 
 def estimate_rows(table: ParameterTable, values: np.ndarray, inference, standardized: np.ndarray,

@@ -12,7 +12,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.groups import split_moments
-from cfa_tool.data.labels import label_notes
+from cfa_tool.data.labels import label_notes, labelled_codes
 from cfa_tool.data.matching import check_columns, check_declared_ranges
 from cfa_tool.data.moments import SampleMoments, item_columns, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.odd_values import odd_values
@@ -168,13 +168,7 @@ def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> tuple[pd
     """Columns other than the model's items whose every code has a value label (SPSS, Stata), as those labels:
     a group column of codes 1..5 labelled 'Dispatch', 'Fleet', ... gives groups named so.  Items keep their codes
     (the answers are numbers); a column with unlabelled codes (weights, say) stays as it is."""
-    labelled = []
-    for column, labels in value_labels.items():
-        if column in items or column not in frame.columns or not labels:
-            continue
-        values = frame[column].dropna()
-        if len(values) and values.isin(list(labels)).all():
-            labelled.append(column)
+    labelled = labelled_codes(frame, value_labels, items)
     if not labelled:
         return frame, []
     frame = frame.copy()
@@ -769,9 +763,16 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     complete = int(every_item.sum()) - odd_complete
     empty = int((~answered.any(axis=1)).sum())
     coverage = {name: float(v) for name, v in answered.mean(axis=0).items()} if len(answered) else {}
+    counted = None
+    if design is not None and design.kind is WeightKind.FREQUENCY:  # the rows as the fit counts them (its N)
+        w = pd.to_numeric(frame.loc[answered.index, design.weights]).to_numpy(dtype=float)
+        whole = every_item & ~np.isin(row_numbers(answered), list(odd_rows)) if odd_rows else every_item
+        none = ~answered.any(axis=1).to_numpy()
+        counted = (float(w.sum()), float(w[whole].sum()), float(w[~whole & ~every_item & ~none].sum()),
+                   float(w[none].sum()))
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - odd_complete - empty, empty,
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None, tuple(notes),
                        odd_value_problems(loaded), len(frame) - len(answered), odd_complete,
-                       len(loaded.read_frame) if loaded.read_frame is not None else None)
+                       len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted)
 

@@ -80,6 +80,9 @@ class CheckResult(Presentable):
     #: rows that answer every model variable only if the values that look like no answers (``problems``) are answers
     complete_by_odd_values: int = 0
     rows_in_file: int | None = None  # rows read before the row filters (None when no filter was given)
+    #: under frequency weights, (read, complete, with gaps, with no answer) each row counted as often as its weight,
+    #: as the fit counts them (its N); None otherwise
+    counted: tuple[float, float, float, float] | None = None
 
     @property
     def admissible(self) -> bool:
@@ -101,6 +104,10 @@ class CheckResult(Presentable):
         lines.append(f"Rows: {read} {self.complete} complete{odd}, {self.with_gaps} with missing answers "
                      f"({'used through pairwise present rows for ordinal items' if self.ordinal else 'used by full-information ML'}, "
                      f"the default), {self.empty} with no answer to any model variable.")
+        if self.counted is not None:
+            read, complete, gaps, empty = (f"{v:,.10g}" for v in self.counted)
+            lines.append(f"Rows counted by their frequency weights, as the fit counts them: {read} read, {complete} "
+                         f"complete, {gaps} with missing answers, {empty} with no answer.")
         low = sorted((v, k) for k, v in self.coverage.items() if v < 1)
         if low:
             rest = "; every other item 100%" if len(low) < len(self.coverage) else ""
@@ -121,7 +128,10 @@ class CheckResult(Presentable):
                 "groups": list(self.groups) if self.groups else None,
                 "design": self.design.to_dict() if self.design is not None else None, "caution": self.caution,
                 "rows_without_group": self.without_group, "rows_in_file": self.rows_in_file,
-                "problems": [p.to_dict() for p in self.problems], "notes": list(self.notes)}
+                "problems": [p.to_dict() for p in self.problems],
+                "rows_counted_by_frequency_weights": None if self.counted is None else dict(zip(
+                    ("read", "complete", "with_gaps", "without_answers"), self.counted)),
+                "notes": list(self.notes)}
 
 
 @dataclass(frozen=True)

@@ -58,7 +58,7 @@ def fit_report(result) -> Report:
     cautions about the data right under them; the methods paragraph, the path diagrams, the tables, the model
     as written and the cautions."""
     d = result.data
-    lines = (f"Model file: {result.model_source}", f"Data: {d.source}; {T.rows_phrase(d)}", T.status_line(result))
+    lines = (f"Model file: {result.model_source}", f"Data: {d.source}; {T.rows_phrase(d, getattr(result, 'design', None))}", T.status_line(result))
     warnings = tuple(result.warnings) + (() if result.converged else (NOT_CONVERGED,))
     figures = tuple(Figure("Path diagram of the fitted model" + ("" if g.label is None else f", group {g.label}")
                            + " (standardized values)", path_diagram(result, k), _figure_note(result))

@@ -9,7 +9,7 @@ import numpy as np
 
 from cfa_tool.assessment.reliability import Keying
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
-from cfa_tool.method import ADJUSTED_TEST
+from cfa_tool.method import ADJUSTED_TEST, WeightKind
 from cfa_tool.reporting.numbers import index_text, missing, num, p_phrase, p_value, unit, word_list
 from cfa_tool.reporting.remedies import Remedy
 
@@ -734,10 +734,14 @@ def label_tables(result) -> list[ReportTable]:
     return out
 
 
-def rows_phrase(data) -> str:
+def rows_phrase(data, design=None) -> str:
     """For the data line: the rows analysed, of the rows read or of those the row filters kept (then with the
-    filters and the rows in the file), and the rows per pair of items when pairs used different rows."""
+    filters and the rows in the file), and the rows per pair of items when pairs used different rows; under
+    frequency weights (``design``) the rows analysed are counted by their weights (the N of the fit), and said so."""
     kept = f"{data.rows_read} {selection_phrase(data)}" if data.row_filters else f"{data.rows_read} read"
+    if design is not None and design.columns.weights is not None and design.columns.kind is WeightKind.FREQUENCY:
+        return (f"{data.n_obs:,.10g} rows analysed, counted by their frequency weights ({design.columns.weights}), "
+                f"of {kept}{pair_rows_phrase(data)}")
     return f"{data.n_obs} rows analysed of {kept}{pair_rows_phrase(data)}"
 
 
@@ -800,7 +804,9 @@ def normality_lines(result) -> list[str]:
             line += f" The data depart from normality: consider {Remedy.ROBUST.said()}."
         design = getattr(result, "design", None)
         if design is not None and design.columns.weights is not None:
-            line += " These tests describe the rows as they are, unweighted."
+            line += (" These tests count each row as often as its frequency weight, as the fit does."
+                     if design.columns.kind is WeightKind.FREQUENCY else
+                     " These tests describe the rows as they are, unweighted.")
         lines.append(line)
     if not lines and result.method.full_information and not result.method.ordinal:
         # said, not silently left out: both need every row complete

@@ -321,6 +321,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     from cfa_tool import options
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.data.filters import apply_filters, parse_filter
+    from cfa_tool.data.labels import labelled_codes, own_labels
     from cfa_tool.data.moments import row_numbers
 
     if api.summary_source(data):
@@ -344,10 +345,16 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
         numeric = _numeric_columns(frame)
         ids = [c for c in numeric if _looks_like_row_ids(frame[c])]
         roles = [c for c in numeric if c not in ids and column_role(c) is not None]
-        chosen = tuple(c for c in numeric if c not in ids and c not in roles)
+        coded = [c for c in labelled_codes(frame, loaded.value_labels) if c in numeric and c not in ids + roles
+                 and own_labels(c, loaded.value_labels)]
+        chosen = tuple(c for c in numeric if c not in ids and c not in roles and c not in coded)
         notes.append(f"Items: every column of {source} that holds numbers ({len(chosen)}); choose them with --items."
                      + (f" Left out as row numbers or ids (every value a different whole number): "
                         f"{', '.join(printable(c) for c in ids)}." if ids else "")
+                     + (f" Left out as codes of categories (every value has a value label of its own, as a "
+                        f"department's do; the items share their answer scale's labels): "
+                        f"{', '.join(printable(c) for c in coded)} (name them in --items to explore them)."
+                        if coded else "")
                      + (" Left out by their names, as columns of the sampling design, ids or groups rather than "
                         "answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
                         + " (name them in --items to explore them)." if roles else "")

@@ -29,7 +29,7 @@ sample's own correlations.  Every chi-square of such a replication is the scale-
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
@@ -40,7 +40,7 @@ from cfa_tool.pipeline.inputs import (load_frame, load_spec, make_options, odd_v
                                       refit_missing_handling, screened)
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
-from cfa_tool.data.moments import SampleMoments, sample_moments
+from cfa_tool.data.moments import SampleMoments, row_numbers, sample_moments
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, EstimationError, OptionError, estimation_of
 from cfa_tool.numerics.linalg import log_det_pd
@@ -286,10 +286,11 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     check_columns(spec, [str(c) for c in frame.columns], source)
     screen = screened(frame, spec.observed_names, source)
     with odd_values_named(screen):
-        pair = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)
+        pair, halves = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)
     problems = odd_value_problems(screen)
     split = pair[0].calibration_result.n_obs + pair[0].loose.n_obs
-    rows = SplitRows(split, len(frame), split < len(frame.dropna(subset=list(spec.observed_names), how="all")))
+    rows = SplitRows(split, len(frame), split < len(frame.dropna(subset=list(spec.observed_names), how="all")),
+                     *halves)
     return tuple(replace(rep, data_problems=problems, split=rows) for rep in pair)
 
 
@@ -301,15 +302,18 @@ class SplitRows:
     split: int
     in_file: int
     complete_only: bool
+    #: the data-row numbers (1 = the first row after the header) of half A and of half B
+    half_a: tuple[int, ...] = field(default=(), repr=False)
+    half_b: tuple[int, ...] = field(default=(), repr=False)
 
     def to_dict(self) -> dict:
         return {"rows_split": self.split, "rows_in_file": self.in_file, "complete_rows_only": self.complete_only}
 
 
 def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal_items, method, missing,
-                pairwise: bool = False, **options) -> tuple[Replication, Replication]:
+                pairwise: bool = False, **options) -> tuple[tuple[Replication, Replication], tuple[tuple[int, ...], ...]]:
     """The halves of the rows fit would analyse: with gaps kept (full-information ML, or ordinal items' pairwise
-    rows), every row with an answer; else the complete rows."""
+    rows), every row with an answer; else the complete rows.  Also the data-row numbers of halves A and B."""
     handling = MissingData.LISTWISE
     if not ordinal_items:
         handling, _ = refit_missing_handling(frame, spec.observed_names, missing)
@@ -323,14 +327,16 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
         raise DataError(f"{source}: {len(complete)} {kind} are too few to split into two halves for "
                         f"{len(spec.observed_names)} variables")
     order = np.random.default_rng(seed).permutation(len(complete))
-    half = len(order) // 2
+    half = (len(order) + 1) // 2  # half A takes the odd row, as explore's exploration half does: the same halves
     a = complete.iloc[np.sort(order[:half])]
     b = complete.iloc[np.sort(order[half:])]
+    rows = (tuple(int(v) for v in row_numbers(a)), tuple(int(v) for v in row_numbers(b)))
     if ordinal_items:
         ma = _ordinal_moments(spec, a, f"{source} (half A, seed {seed})", ordinal_items, pairwise)
         mb = _ordinal_moments(spec, b, f"{source} (half B, seed {seed})", ordinal_items, pairwise)
-        return (replicate_ordinal(spec, ma, mb, method, **options), replicate_ordinal(spec, mb, ma, method, **options))
+        return (replicate_ordinal(spec, ma, mb, method, **options),
+                replicate_ordinal(spec, mb, ma, method, **options)), rows
     ma = sample_moments(a, spec.observed_names, f"{source} (half A, seed {seed})", missing=handling)
     mb = sample_moments(b, spec.observed_names, f"{source} (half B, seed {seed})", missing=handling)
 
-    return replicate_moments(spec, ma, mb, **options), replicate_moments(spec, mb, ma, **options)
+    return (replicate_moments(spec, ma, mb, **options), replicate_moments(spec, mb, ma, **options)), rows

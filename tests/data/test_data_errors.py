@@ -136,3 +136,42 @@ def test_a_group_without_any_answer_is_named_as_such(hs_data):
     many.loc[many.school == "Pasteur", items[:7]] = np.nan
     with pytest.raises(DataError, match="'x1', 'x2', 'x3', 'x4', 'x5' and 2 more have no answers at all"):
         cfa_tool.fit(THREE_FACTORS, many, group="school")
+
+def test_thousands_dots_in_a_decimal_comma_file_are_not_read_as_decimals(tmp_path):
+    # '1.083' beside '850' in one column of a semicolon (decimal-comma) file: 1083 with a thousands dot, or 1.083?
+    # The reading cannot be decided, so the file is refused, naming the column, the two values and their rows.
+    from cfa_tool.data.readers import read_data
+
+    data = _frame(6)
+    weights = ["1.083", "850", "1.107", "912", "1.253", "1.370"]
+    lines = ["a;b;c;w"] + [";".join([*(f"{v:.3f}".replace(".", ",") for v in row), w])
+                           for row, w in zip(data.to_numpy(), weights)]
+    path = _write(tmp_path, "\n".join(lines) + "\n")
+    with pytest.raises(DataError, match=r"column 'w' holds '1.083' in data row 1 beside whole numbers such as '850' "
+                                        r"\(data row 2\).*separate thousands \(1083\)"):
+        read_data(path)
+
+
+def test_three_decimal_dots_beside_decimal_commas_get_a_note(tmp_path):
+    # every dotted value of 'w' has three decimals and no whole number reaches 100, while the file writes the
+    # answers with decimal commas: 'w' is read with '.' as the decimal point (1.083), and a note says so
+    from cfa_tool.data.readers import read_data
+
+    data = _frame(6)
+    weights = ["1.083", "0.850", "1.107", "2", "1.253", "1.370"]
+    lines = ["a;b;c;w"] + [";".join([*(f"{v:.3f}".replace(".", ",") for v in row), w])
+                           for row, w in zip(data.to_numpy(), weights)]
+    loaded = read_data(_write(tmp_path, "\n".join(lines) + "\n"))
+    assert [n for n in loaded.notes if "column 'w' was read with '.' as the decimal point ('1.083' in data row 1)" in n]
+    assert pd.to_numeric(loaded.frame["w"]).tolist() == [1.083, 0.85, 1.107, 2, 1.253, 1.37]
+    assert loaded.frame["a"].round(3).tolist() == data["a"].round(3).tolist()
+
+
+def test_three_decimal_dots_alone_in_a_semicolon_file_are_decimals_without_a_note(tmp_path):
+    # answers written 4.000 in a semicolon file and no decimal comma anywhere: read as 4, nothing to say
+    from cfa_tool.data.readers import read_data
+
+    path = _write(tmp_path, "a;b;c\n4.000;3.000;2.000\n1.000;2.000;5.000\n")
+    loaded = read_data(path)
+    assert loaded.notes == ()
+    assert pd.to_numeric(loaded.frame["a"]).tolist() == [4, 1]

@@ -87,3 +87,35 @@ def test_cluster_and_stratum_labels_are_read_as_group_labels_are(spaced):
     assert notes[0].startswith("in the cluster column 'school', labels that differ only by spaces at their ends or by "
                                "Unicode form were read as one cluster: 's0' and 's0 ' as 's0'")
     assert notes[1].startswith("in the strata column 'region'") and "were read as one stratum" in notes[1]
+
+
+SPELLED = "numbers written in different ways were read as one group: '01' and '1' as '1'; '2' and '2.0' as '2'"
+
+
+@pytest.fixture(scope="module")
+def spelled_file(spaced, tmp_path_factory):
+    """The same rows in a CSV file whose group column writes its numbers in several ways: group 1 as '1' and (every
+    fifth row) '01', group 2 as '2' and '2.0', group 3 always as '3'."""
+    labels = np.repeat(["1", "2", "3"], 150).astype(object)
+    fifth = np.arange(450) % 5 == 0
+    labels[fifth & (labels == "1")] = "01"
+    labels[fifth & (labels == "2")] = "2.0"
+    path = tmp_path_factory.mktemp("spelled") / "spelled.csv"
+    spaced.drop(columns="area").assign(area=labels).to_csv(path, index=False)
+    return path
+
+
+def test_numbers_written_in_different_ways_are_one_group_and_every_command_says_so(spaced, spelled_file):
+    # '01' and '1' are the number 1 in a column of numbers: one group of 150 rows, as the clean labels give, and a
+    # note naming the ways it was written (the reader keeps them as written: pandas reads the column as numbers)
+    fitted = cfa_tool.fit(MODEL, spelled_file, group="area")
+    assert [(g.label, g.data.n_obs) for g in fitted.groups] == [("1", 150), ("2", 150), ("3", 150)]
+    assert [w for w in fitted.warnings if SPELLED in w]
+    assert [n for n in cfa_tool.check(MODEL, spelled_file, group="area").notes if SPELLED in n]
+    assert [w for w in cfa_tool.invariance(MODEL, spelled_file, group="area").warnings if SPELLED in w]
+    cluster = cfa_tool.fit(MODEL, spelled_file, cluster="area")
+    assert [w for w in cluster.warnings if "numbers written in different ways were read as one cluster" in w]
+    # a filter that leaves only the labels written one way leaves no note
+    kept = cfa_tool.fit(MODEL, spelled_file, group="area", keep=["area != 1"])
+    assert [g.label for g in kept.groups] == ["2", "3"]
+    assert [w for w in kept.warnings if "'2' and '2.0' as '2'" in w] and not [w for w in kept.warnings if "'01'" in w]

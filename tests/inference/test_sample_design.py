@@ -450,6 +450,43 @@ def test_mardia_under_weights_says_it_is_unweighted(hs_data):
     assert not any("unweighted" in line for line in normality_lines(cfa_tool.fit(THREE_FACTORS, hs_data)))
 
 
+def _hand_mardia(X: np.ndarray) -> tuple[float, float]:
+    """Mardia's (1970) b1 and b2 written out: b1 = (1/N^2) sum_ij (z_i' S^-1 z_j)^3, b2 = (1/N) sum_i
+    (z_i' S^-1 z_i)^2, S with divisor N (Mardia 1970, eqs. 2.5 and 2.6), by the full N x N matrix."""
+    Z = X - X.mean(axis=0)
+    D = Z @ np.linalg.inv(Z.T @ Z / len(X)) @ Z.T
+    return float((D**3).sum() / len(X) ** 2), float((np.diag(D) ** 2).mean())
+
+
+@pytest.mark.parametrize("rows, items", [(301, 9), (40, 8)])  # many rows (moment tensor) and few (Gram blocks)
+def test_mardia_under_frequency_weights_is_that_of_the_repeated_rows(hs_data, rows, items):
+    # a row of frequency weight k stands for k rows: Mardia's tests are those of the file with each row written out
+    # k times (N = the sum of the weights), checked against the formulas computed by hand on that expanded file
+    from cfa_tool.assessment.normality import mardia
+
+    X = hs_data[[f"x{i}" for i in range(1, items + 1)]].to_numpy()[:rows]
+    counts = np.random.default_rng(3).integers(1, 4, len(X))
+    expanded = np.repeat(X, counts, axis=0)
+    b1, b2 = _hand_mardia(expanded)
+    weighted = mardia(X, frequencies=counts.astype(float))
+    assert weighted.skewness == pytest.approx(b1, rel=1e-10)
+    assert weighted.kurtosis == pytest.approx(b2, rel=1e-10)
+    assert weighted.skewness_chi_square == pytest.approx(counts.sum() * b1 / 6, rel=1e-10)
+    assert weighted.kurtosis_z == pytest.approx(mardia(expanded).kurtosis_z, rel=1e-10)
+    assert weighted.skewness != pytest.approx(mardia(X).skewness, rel=1e-3)  # the records alone differ
+
+
+def test_a_frequency_weighted_fit_reports_the_repeated_rows_normality(hs_data):
+    from cfa_tool.reporting.tables import normality_lines
+
+    counts = np.random.default_rng(7).integers(1, 4, len(hs_data))
+    weighted = cfa_tool.fit(THREE_FACTORS, hs_data.assign(k=counts), weights="k", weight_kind="frequency")
+    plain = cfa_tool.fit(THREE_FACTORS, hs_data.loc[hs_data.index.repeat(counts)].reset_index(drop=True))
+    a, b = weighted.groups[0].normality, plain.groups[0].normality
+    assert (a.skewness_chi_square, a.kurtosis_z) == pytest.approx((b.skewness_chi_square, b.kurtosis_z), rel=1e-9)
+    assert normality_lines(weighted)[0].endswith("count each row as often as its frequency weight, as the fit does.")
+
+
 def test_bootstrap_with_few_clusters_says_its_intervals_are_rough(hs_data):
     # a hostile trial: resampling 2 clusters (3 distinct resamples) printed intervals without a word on them
     from cfa_tool.reporting.workflow_tables import bootstrap_report
@@ -457,3 +494,21 @@ def test_bootstrap_with_few_clusters_says_its_intervals_are_rough(hs_data):
     data = hs_data.assign(site=np.arange(len(hs_data)) % 12)
     boot = cfa_tool.bootstrap(THREE_FACTORS, data, replications=20, bca=False, bollen_stine=False, cluster="site")
     assert any(line.startswith("With only 12 clusters") for line in bootstrap_report(boot).lines)
+
+
+def test_check_and_the_data_line_count_rows_by_their_frequency_weights(hs_data):
+    # the fit's N under frequency weights is the sum of the weights; check says the rows counted so beside the
+    # records, and the fit's data line says that its rows analysed are counted by the weights (they read
+    # '602 rows analysed of 301 read')
+    data = hs_data.assign(k=np.where(np.arange(len(hs_data)) % 2 == 0, 3, 1))
+    data.loc[data.index[:4], "x1"] = np.nan  # rows 1-4 (weights 3, 1, 3, 1) have a gap
+    checked = cfa_tool.check(THREE_FACTORS, data, weights="k", weight_kind="frequency")
+    total = float(data["k"].sum())
+    assert checked.counted == (total, total - 8, 8.0, 0.0)
+    assert f"Rows counted by their frequency weights, as the fit counts them: {total:,.0f} read, {total - 8:,.0f} " \
+           f"complete, 8 with missing answers, 0 with no answer." in " ".join(checked.summary().split())
+    assert cfa_tool.check(THREE_FACTORS, data).counted is None
+    fitted = cfa_tool.fit(THREE_FACTORS, data, weights="k", weight_kind="frequency")
+    assert fitted.n_obs == total
+    text = " ".join(fitted.summary().split())
+    assert f"{total:,.0f} rows analysed, counted by their frequency weights (k), of 301 read" in text
