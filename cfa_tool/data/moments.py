@@ -39,9 +39,10 @@ def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) ->
     """The named columns as a float array; anything that is not a number is an error naming the
     column and the cell: text, TRUE/FALSE, dates and times, complex numbers, and numbers too
     large for double precision."""
+    values = item_values(frame, names)
+    if values is not None:  # already numbers
+        return values
     selected = [frame[name] for name in names]
-    if all(c.dtype.kind in "iuf" for c in selected):  # already numbers: copy them in (a sub-frame costs more)
-        return _copied(selected, len(frame))
     columns = []
     for name, column in zip(names, selected):
         kind = column.dtype.kind
@@ -64,6 +65,23 @@ def item_values(frame: pd.DataFrame, names: tuple[str, ...] | list[str]) -> np.n
     or float, numpy or nullable): what :func:`numeric_columns` returns for them, taken out of the frame once so that
     the screening, the missing-data handling and the moments share it.  None when a column is missing or holds
     anything else (the readers of the frame then name the column or the cell)."""
+    if not frame.columns.is_unique:  # a name held by two columns selects a frame, not a column
+        return _values_one_by_one(frame, names)
+    try:
+        where = [frame.columns.get_loc(name) for name in names]
+    except (KeyError, TypeError):
+        return None
+    dtypes = frame.dtypes.to_numpy()[where]
+    if not all(d.kind in "iuf" for d in dtypes):
+        return None
+    if all(isinstance(d, np.dtype) for d in dtypes):  # numpy columns: one selection and one conversion
+        values = np.ascontiguousarray(frame.take(where, axis=1).to_numpy(dtype=float))  # rows in order, as before
+        return values if values.flags.writeable else values.copy()
+    return _copied([frame.iloc[:, j] for j in where], len(frame))
+
+
+def _values_one_by_one(frame: pd.DataFrame, names) -> np.ndarray | None:
+    """:func:`item_values` of a frame whose column names are not all unique."""
     try:
         selected = [frame[name] for name in names]
     except KeyError:

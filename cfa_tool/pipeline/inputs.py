@@ -423,11 +423,12 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
         "variables": {k: v for k, v in loaded.variable_labels.items() if k in spec.observed_names},
         "values": {k: v for k, v in loaded.value_labels.items() if k in spec.observed_names},
     }
-    result = replace(result, warnings=tuple(notes) + result.warnings,
-                     missing_data=summary if summary is not None and (summary["n_patterns"] > 1
-                                                                      or not all(summary["coverage"].values())) else None,
-                     labels=labels if labels["variables"] or labels["values"] else None)
-    return _described(result, spec, tuple(label for label, _ in groups) if group is not None else None)
+    group_labels = tuple(label for label, _ in groups) if group is not None else None
+    return replace(result, warnings=tuple(notes) + result.warnings,  # with _described's description: one replace
+                   missing_data=summary if summary is not None and (summary["n_patterns"] > 1
+                                                                    or not all(summary["coverage"].values())) else None,
+                   labels=labels if labels["variables"] or labels["values"] else None,
+                   description=_description(spec, group_labels, None if group_labels is None else ()))
 
 
 def counted_by(design: DesignColumns | None) -> str | None:
