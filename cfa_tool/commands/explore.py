@@ -6,8 +6,7 @@ from __future__ import annotations
 import argparse
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import add_report_options, check_files, console, docx_file, report_files, require_suffix, \
-    notice_on_standard_error, say, table_files, write_reports, write_tables
+from cfa_tool.commands.common import add_report_options, check_files, emit_report, require_suffix, say
 
 
 def add_parser(sub) -> None:
@@ -46,9 +45,7 @@ def add_parser(sub) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from cfa_tool.reporting.reports import report_of
     from cfa_tool.language.parser import MODEL_SUFFIX
-    from cfa_tool.reporting.explore_report import explore_html_report, explore_markdown, render_explore
     from cfa_tool.workflows.explore import explore
 
     require_suffix("--draft", args.draft, MODEL_SUFFIX, "model files")
@@ -59,17 +56,8 @@ def run(args: argparse.Namespace) -> int:
                      extraction=args.extraction, ordinal=O.ordinal_arg(args.ordinal), split=args.split,
                      sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
                      replications=args.replications, seed=args.seed, target=args.target)
-    files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
-    report = report_of(result)  # the JSON's report, the Word document and the tables (one report model)
-    files += report_files(args, result, explore_html_report, explore_markdown, report)
-    files += docx_file(args, report)
-    tables = table_files(args, report, [args.data])
-    if not args._stdout_taken:
-        render_explore(result, console())
-    else:
-        notice_on_standard_error(report.notice)
-    write_reports(args, files)
-    write_tables(args, tables, [args.data])
+    draft = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
+    emit_report(args, result, [args.data, args.target], draft)  # one report for every format
     if args.draft and not result.exploration.draft.usable:
         say(args, "The draft model declares no factor (too few items per factor); it holds comments only")
     return 0

@@ -6,12 +6,17 @@ writes any format later without fitting again.  Which result has which report: c
 from __future__ import annotations
 
 import enum
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from cfa_tool.reporting.tables import ProblemNotice, ReportTable
 
 
 WARNINGS = "Notes and warnings on the data and the estimation"  # the heading of a report's warnings in every view
+
+
+def in_section(section: str, tables) -> list[ReportTable]:
+    """The tables (None left out) under the heading ``section`` in every view."""
+    return [replace(t, section=section) for t in tables if t is not None]
 
 
 class ResultKind(enum.Enum):

@@ -127,7 +127,7 @@ def render_report(report, console: Console) -> None:
         console.print(rich_table(table))
     for listing in report.listings:
         console.print(Text(listing.title, style="bold"))
-        console.print(Text(printable(listing.text, keep_newlines=True)))
+        console.print(Text(printable(listing.text, keep_newlines=True)), soft_wrap=True)  # its lines as written
     for line in report.notes:
         console.print(line)
     for line in report.cautions:
