@@ -59,6 +59,7 @@ def fit_report(result) -> Report:
     figures = tuple(Figure("Path diagram of the fitted model" + ("" if g.label is None else f", group {g.label}")
                            + " (standardized values)", path_diagram(result, k), _figure_note(result))
                     for k, g in enumerate(result.groups))
+    left_out = T.matrices_left_out(result)
     return Report(ResultKind.FIT, result.model_name, T.problem_notice(result), lines, tuple(fit_tables(result)),
-                  (), (HIGH_STAKES_NOTE,), methods_paragraph(result), figures, T.problem_table(result), warnings,
+                  () if left_out is None else (left_out,), (HIGH_STAKES_NOTE,), methods_paragraph(result), figures, T.problem_table(result), warnings,
                   (Listing("Model", result.model_text),))

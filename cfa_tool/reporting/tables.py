@@ -21,7 +21,13 @@ HIGH_STAKES_NOTE = (
     "If this scale is used for decisions about people (screening, hiring, diagnosis), such use needs evidence of "
     "validity for that purpose and the judgement of a licensed professional under local rules."
 )
-MAX_RESIDUAL_MATRIX = 20
+# items of a matrix of the items (correlations, residual correlations) that the terminal shows: a wider one is cut
+# into parts of a few columns each; the HTML, Markdown and Word reports and the table files show up to MAX_MATRIX
+# (beyond, its cells are too small to read, and the report says where it is left out)
+MAX_TERMINAL_MATRIX = 20
+MAX_MATRIX = 60
+HEAT_FULL = 0.15  # |value| at which a shaded cell has its full colour
+HEAT_LEGEND = f"Shading: red positive, blue negative, full colour at {HEAT_FULL:g} or more in size.".replace("0.", ".")
 
 KIND_TITLES = {
     "loading": "Loadings",
@@ -50,7 +56,8 @@ class ReportTable:
     values: tuple[tuple, ...] | None = None
     faint: tuple[tuple[int, int], ...] = ()  # (row, column) cells shown faintly (e.g. small loadings)
     section: str = ""  # the heading of the part of the report the table opens or continues ('' for none)
-    heat: bool = False  # numeric cells shaded by sign and size where a view can colour them (HTML)
+    heat: bool = False  # numeric cells shaded by sign and size where a view can colour them (HTML, Word)
+    matrix: bool = False  # a matrix of the items: left out of the terminal beyond MAX_TERMINAL_MATRIX items
 
     def to_dict(self) -> dict:
         """The table as JSON holds it (a saved result carries its report: see reporting.document)."""
@@ -58,7 +65,8 @@ class ReportTable:
                 "rows": [list(r) for r in self.rows], "note": self.note, "flagged": list(self.flagged),
                 "value_columns": None if self.value_columns is None else list(self.value_columns),
                 "values": None if self.values is None else [[_plain(v) for v in row] for row in self.values],
-                "faint": [list(f) for f in self.faint], "section": self.section, "heat": self.heat}
+                "faint": [list(f) for f in self.faint], "section": self.section, "heat": self.heat,
+                "matrix": self.matrix}
 
     @classmethod
     def from_dict(cls, d: dict) -> "ReportTable":
@@ -69,7 +77,7 @@ class ReportTable:
                     None if d.get("value_columns") is None else tuple(map(str, d["value_columns"])),
                     None if d.get("values") is None else tuple(tuple(r) for r in d["values"]),
                     tuple((int(i), int(j)) for i, j in d.get("faint", ())), str(d.get("section", "")),
-                    bool(d.get("heat", False)))
+                    bool(d.get("heat", False)), bool(d.get("matrix", False)))
         width = len(table.columns)
         if (not width or len(table.align) != width or any(a not in ("l", "r") for a in table.align)
                 or any(len(r) != width for r in table.rows)
@@ -442,7 +450,7 @@ def estimate_tables(result, group: int = 0) -> list[ReportTable]:
 def residual_table(result, group: int = 0) -> ReportTable | None:
     """Lower triangle of the residual correlations (sample minus model)."""
     names = result.observed
-    if len(names) > MAX_RESIDUAL_MATRIX or len(names) < 2 or not result.converged:
+    if len(names) > MAX_MATRIX or len(names) < 2 or not result.converged:
         return None
     r = result.groups[group].residual_correlations
     rows = [[f"{i + 1} {name}"] + [unit(r[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
@@ -450,7 +458,7 @@ def residual_table(result, group: int = 0) -> ReportTable | None:
     table = _table(f"residuals_{group}", "Residual correlations (sample minus model)",
                    [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows,
                    "Positive: the model underestimates the correlation of the two items; negative: it overestimates it.")
-    return replace(table, heat=True)
+    return replace(table, heat=True, matrix=True)
 
 
 def group_table(result) -> ReportTable:
@@ -757,7 +765,7 @@ def pair_rows_phrase(data) -> str:
 def correlation_table(result, group: int = 0) -> ReportTable | None:
     """The items' sample correlations (lower triangle), with the number of rows they come from."""
     names = result.observed
-    if len(names) > MAX_RESIDUAL_MATRIX or len(names) < 2:
+    if len(names) > MAX_MATRIX or len(names) < 2:
         return None
     g = result.groups[group]
     S = g.sample_covariance
@@ -776,8 +784,40 @@ def correlation_table(result, group: int = 0) -> ReportTable | None:
         (result.method.full_information,
          "With full-information estimation: the saturated model's estimates from every answer."),
     ) if applies]
-    return _table(f"correlations_{group}", f"Correlations of the items{where} ({rows_used})",
-                  [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows, " ".join(said) or None)
+    table = _table(f"correlations_{group}", f"Correlations of the items{where} ({rows_used})",
+                   [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows, " ".join(said) or None)
+    return replace(table, matrix=True)
+
+
+def matrices_left_out(result) -> str | None:
+    """Where the item matrices (correlations, residual correlations) are left out of every view, and why."""
+    items = len(result.observed)
+    if items <= MAX_MATRIX:
+        return None
+    return (f"The correlations of the items and the residual correlations are not shown as tables: {items} items "
+            f"are more than the {MAX_MATRIX} a matrix stays readable with. The JSON result (--json) holds the "
+            f"residual correlations; the largest is named under the fit.")
+
+
+def terminal_matrix_left_out(table: ReportTable) -> str | None:
+    """Why a matrix of the items is not drawn in the terminal (None: it is): too many items to read there."""
+    items = len(table.rows) + 1
+    if not table.matrix or items <= MAX_TERMINAL_MATRIX:
+        return None
+    return (f"{table.title}: {items} items, more than the {MAX_TERMINAL_MATRIX} a terminal shows readably; the HTML, "
+            f"Markdown and Word reports and the --tables files hold it.")
+
+
+def heat_colour(text: str) -> str | None:
+    """The shade of a matrix cell as #rrggbb (None for a cell that is no number): red for a positive value, blue
+    for a negative one, stronger with size up to HEAT_FULL."""
+    try:
+        value = float(text)
+    except ValueError:
+        return None
+    strength = min(abs(value) / HEAT_FULL, 1.0) if np.isfinite(value) else 0.0
+    full = (200, 40, 40) if value > 0 else (40, 80, 200)
+    return "#" + "".join(f"{round(255 + (c - 255) * strength):02x}" for c in full)
 
 
 def normality_lines(result) -> list[str]:
