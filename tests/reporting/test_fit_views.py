@@ -16,7 +16,7 @@ from docx.oxml.ns import qn
 
 import cfa_tool
 from cfa_tool.reporting import tables as T
-from cfa_tool.reporting.document import WARNINGS
+from cfa_tool.reporting.document import WARNINGS, sentence
 from cfa_tool.reporting.docx_report import report_docx
 from cfa_tool.reporting.fit_document import fit_report
 from cfa_tool.reporting.html_report import report_html
@@ -126,7 +126,7 @@ def test_the_data_cautions_come_right_under_the_title(troubled):
     first_table = report.tables[0].title
     for text in (report_text(report, 100), report_markdown(report), _word_text(report_docx(report, 72))):
         text = _plain(text)
-        listwise = text.index("listwise deletion left out 45 of 301 rows")
+        listwise = text.index("Listwise deletion left out 45 of 301 rows")  # (as a sentence: document.sentence)
         assert text.index(report.title) < listwise < text.index(first_table)
         assert listwise < text.index("A confirmatory factor analysis")  # before the methods paragraph
 
@@ -135,7 +135,7 @@ def test_the_word_report_holds_the_normality_tests_and_the_warnings(troubled):
     texts = [_plain(p.text) for p in docx.Document(io.BytesIO(report_docx(fit_report(troubled), 72))).paragraphs]
     [normality] = T.normality_lines(troubled)
     assert any(_plain(normality) in t for t in texts)  # under the fit table, in its note
-    assert _plain(troubled.warnings[0]) in texts
+    assert _plain(sentence(troubled.warnings[0])) in texts
     assert WARNINGS in texts
 
 
