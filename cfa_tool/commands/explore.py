@@ -6,8 +6,8 @@ from __future__ import annotations
 import argparse
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import HALVES_FILE, add_halves_file, add_report_options, check_files, console, docx_file, \
-    halves_file, report_files, require_suffix, notice_on_standard_error, say, table_files, write_reports, write_tables
+from cfa_tool.commands.common import HALVES_FILE, add_halves_file, add_report_options, check_files, emit_report, \
+    halves_file, require_suffix, say
 
 
 def add_parser(sub) -> None:
@@ -48,9 +48,7 @@ def add_parser(sub) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from cfa_tool.errors import OptionError
-    from cfa_tool.reporting.reports import report_of
     from cfa_tool.language.parser import MODEL_SUFFIX
-    from cfa_tool.reporting.explore_report import explore_html_report, explore_markdown, render_explore
     from cfa_tool.workflows.explore import explore
 
     require_suffix("--draft", args.draft, MODEL_SUFFIX, "model files")
@@ -70,16 +68,7 @@ def run(args: argparse.Namespace) -> int:
     if result.split is not None:
         files += halves_file(args, [("exploration", result.split.exploration_rows),
                                     ("confirmation", result.split.confirmation_rows)])
-    report = report_of(result)  # the JSON's report, the Word document and the tables (one report model)
-    files += report_files(args, result, explore_html_report, explore_markdown, report)
-    files += docx_file(args, report)
-    tables = table_files(args, report, [args.data])
-    if not args._stdout_taken:
-        render_explore(result, console())
-    else:
-        notice_on_standard_error(report.notice)
-    write_reports(args, files)
-    write_tables(args, tables, [args.data])
+    emit_report(args, result, [args.data, args.target], files)  # one report for every format
     if args.draft and not result.exploration.draft.usable:
         say(args, "The draft model declares no factor (too few items per factor); it holds comments only")
     return 0

@@ -61,6 +61,10 @@ class RobustFit:
         del d["test"]
         if self.scale is None:
             del d["scale"], d["shift"]
+        else:  # the statistic is scale x chi-square + shift: the mean-adjusted scaling tr(U Gamma) / df is no piece of
+            # it (difference tests use it), so it is named for what it is; the baseline's serves no statistic: left out
+            d["mean_adjusted_scaling"] = d.pop("scaling_factor")
+            del d["baseline_scaling_factor"]
         d["rmsea_robust_ci90"] = list(self.rmsea_robust_ci90)
         return {"method": self.test.label, **d}
 

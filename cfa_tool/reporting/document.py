@@ -6,12 +6,29 @@ writes any format later without fitting again.  Which result has which report: c
 from __future__ import annotations
 
 import enum
-from dataclasses import dataclass
+import re
+from dataclasses import dataclass, replace
 
 from cfa_tool.reporting.tables import ProblemNotice, ReportTable
 
 
 WARNINGS = "Notes and warnings on the data and the estimation"  # the heading of a report's warnings in every view
+
+
+# a plain lower-case first word ("listwise deletion left out ..."): not a file or a variable name ("data.csv: ...",
+# "x1: ...", "q_3 ..."), which keeps its case
+_PLAIN_FIRST_WORD = re.compile(r"[a-z]+(?=[ ,;(]|$)")
+
+
+def sentence(line: str) -> str:
+    """A notice's line as a sentence: starting with a capital when its first word is a plain lower-case word.
+    Every line of a report's notices passes here (:class:`Report`), whichever part of the tool made it."""
+    return line[0].upper() + line[1:] if _PLAIN_FIRST_WORD.match(line) else line
+
+
+def in_section(section: str, tables) -> list[ReportTable]:
+    """The tables (None left out) under the heading ``section`` in every view."""
+    return [replace(t, section=section) for t in tables if t is not None]
 
 
 class ResultKind(enum.Enum):
@@ -70,6 +87,13 @@ class Report:
     # cautions about the data and the estimation (rows left out, codes read as missing): right under the lines
     warnings: tuple[str, ...] = ()
     listings: tuple[Listing, ...] = ()
+
+    def __post_init__(self) -> None:
+        # the notices' lines as sentences, in every view and in a saved report (those saved before too)
+        for name in ("warnings", "notes", "cautions"):
+            object.__setattr__(self, name, tuple(sentence(line) for line in getattr(self, name)))
+        if self.notice is not None:
+            object.__setattr__(self, "notice", replace(self.notice, lines=tuple(sentence(x) for x in self.notice.lines)))
 
     def to_dict(self) -> dict:
         notice = None if self.notice is None else {"heading": self.notice.heading, "lines": list(self.notice.lines),

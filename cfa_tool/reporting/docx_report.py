@@ -20,6 +20,7 @@ from cfa_tool.errors import printable
 from cfa_tool.reporting.column_parts import column_parts, label_columns
 from cfa_tool.reporting.picture import DEFAULT_DPI, page_fit, png_converter, svg_to_png
 from cfa_tool.reporting.document import WARNINGS
+from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.tables import ReportTable
 
 FAINT_GREY = RGBColor(0x99, 0x99, 0x99)
@@ -31,11 +32,7 @@ NO_PICTURE = ("The path diagram is not included: making a picture for Word needs
 
 def _rule(cell, edge: str, size: int = 8) -> None:
     """A horizontal rule on one edge of a table cell (APA tables have no vertical rules)."""
-    properties = cell._tc.get_or_add_tcPr()
-    borders = properties.find(qn("w:tcBorders"))
-    if borders is None:
-        borders = OxmlElement("w:tcBorders")
-        properties.append(borders)
+    borders = _property(cell._tc.get_or_add_tcPr(), "w:tcBorders")
     line = OxmlElement(f"w:{edge}")
     line.set(qn("w:val"), "single")
     line.set(qn("w:sz"), str(size))
@@ -89,8 +86,8 @@ def _column_widths(table: ReportTable, size: float) -> tuple[list[float], list[f
     """For each column the width it needs on one line (its longest cell) and the least it needs (numeric
     cells whole; text and the header broken only between words), in points without the cell margins."""
     wanted, least = [], []
-    for j, header in enumerate(table.columns):
-        cells = [row[j] for row in table.rows]
+    for j, header in enumerate(table.columns):  # the cells as set (a true minus is wider than a hyphen)
+        cells = [typeset(row[j], table.align[j] == "r") for row in table.rows]
         words = [w for text in [header, *([] if table.align[j] == "r" else cells)] for w in text.split()]
         whole = cells if table.align[j] == "r" else []
         least.append(max([_text_width(t, size) for t in [*words, *whole]] or [0.0]))
@@ -128,12 +125,28 @@ def _set_orientation(document, landscape: bool) -> None:
         min(width, height) if landscape else max(width, height)
 
 
+# the order the properties of a table and of a cell must come in (ECMA-376 Part 1, 17.4.60 tblPr and 17.4.70 tcPr):
+# readers ignore or refuse others (LibreOffice dropped the narrow cell margins of a table set after its look)
+_ORDER = {"w:tblPr": ("w:tblStyle", "w:tblpPr", "w:tblOverlap", "w:bidiVisual", "w:tblStyleRowBandSize",
+                      "w:tblStyleColBandSize", "w:tblW", "w:jc", "w:tblCellSpacing", "w:tblInd", "w:tblBorders",
+                      "w:shd", "w:tblLayout", "w:tblCellMar", "w:tblLook", "w:tblCaption", "w:tblDescription"),
+          "w:tcPr": ("w:cnfStyle", "w:tcW", "w:gridSpan", "w:hMerge", "w:vMerge", "w:tcBorders", "w:shd", "w:noWrap",
+                     "w:tcMar", "w:textDirection", "w:tcFitText", "w:vAlign", "w:hideMark")}
+
+
 def _property(parent, tag: str, **values: str):
-    """An OOXML property element ``tag`` under ``parent`` (made when missing) with the ``values`` set."""
+    """An OOXML property element ``tag`` under ``parent`` (made when missing; in a table's or a cell's properties,
+    at its place in their order) with the ``values`` set."""
     element = parent.find(qn(tag))
     if element is None:
         element = OxmlElement(tag)
-        parent.append(element)
+        order = next((o for t, o in _ORDER.items() if parent.tag == qn(t)), ())
+        later = {qn(t) for t in order[order.index(tag) + 1:]} if tag in order else set()
+        after = next((child for child in parent if child.tag in later), None)
+        if after is not None:
+            after.addprevious(element)
+        else:
+            parent.append(element)
     for name, value in values.items():
         element.set(qn(f"w:{name}"), value)
     return element
@@ -198,6 +211,9 @@ def _grid(document, table: ReportTable, columns: list[int], widths: list[float],
                 run.font.color.rgb = PROBLEM_RED
             if numeric:
                 paragraph.alignment = WD_ALIGN_PARAGRAPH.RIGHT
+                shade = T.heat_colour(str(values[c])) if table.heat and r > 0 else None
+                if shade is not None:  # a matrix's cells shaded as in the HTML report
+                    _property(cell._tc.get_or_add_tcPr(), "w:shd", val="clear", color="auto", fill=shade[1:])
             if r == 0:
                 _rule(cell, "top")
                 _rule(cell, "bottom")
@@ -225,8 +241,9 @@ def _add_table(document, table: ReportTable, number: int) -> None:
         _grid(document, table, columns, widths, size, padding)
         if k < len(parts) - 1:
             document.add_paragraph()
-    if table.note:
-        _note(document, table.note)
+    note = " ".join(text for text in (table.note, T.HEAT_LEGEND if table.heat else "") if text)
+    if note:
+        _note(document, note)
     else:
         document.add_paragraph()
 

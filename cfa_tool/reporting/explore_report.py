@@ -1,15 +1,12 @@
-"""The report of an exploration: the shared report tables (ReportTable) drawn in the terminal, HTML
-and Markdown, a scree plot (inline SVG) in HTML, and the draft model."""
+"""The report of an exploration as the one report model (cfa_tool.reporting.document.Report): its tables
+(ReportTable), the scree plot (SVG) and the draft model, drawn by the shared renderers of every format."""
 
 from __future__ import annotations
-
-import io
 
 import numpy as np
 
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
-from cfa_tool.reporting.escape import markdown_text
 from cfa_tool.reporting.numbers import num, unit
 from cfa_tool.reporting.tables import GUIDE_NOTE, ReportTable, _table
 
@@ -18,6 +15,8 @@ SPLIT_STATEMENT = ("The rows were divided at random into two halves (seed {seed}
                    "({second} rows) was not used to choose the model, only to fit it.")
 SAME_DATA_CAUTION = ("The draft model was chosen from these data; fitted to the same data its fit looks better than it "
                      "is. Fit it to other data (or explore with --split SEED).")
+COUNT_SECTION = "How many factors"
+CONFIRMATION_SECTION = "Confirmation half: the draft model fitted"
 SCREE_ROWS = 20  # positions shown in the eigenvalue table and the scree plot
 
 
@@ -161,14 +160,15 @@ def split_lines(result) -> list[str]:
     return lines
 
 
-def explore_tables(result) -> list[ReportTable]:
-    out = [count_table(result), eigenvalue_table(result), fits_table(result), loading_table(result)]
+def explore_tables(result) -> tuple[list[ReportTable], list[ReportTable]]:
+    """The tables of the number of factors, and those of the chosen solution."""
+    out = [loading_table(result)]
     if result.exploration.rotated.oblique and result.factors > 1:
         out.append(loading_table(result, structure=True))
     extra = factor_correlation_table(result)
     if extra is not None:
         out.append(extra)
-    return out
+    return [count_table(result), eigenvalue_table(result), fits_table(result)], out
 
 
 def confirmation_tables(result) -> list[ReportTable]:
@@ -180,57 +180,10 @@ def confirmation_tables(result) -> list[ReportTable]:
     return out + [t for t in T.estimate_tables(fit) if t.key.split("_")[0] in ("factor", "factors")]
 
 
-def render_explore(result, console) -> None:
-    from rich.text import Text
-
-    from cfa_tool.reporting.terminal import problem_panel, rich_table
-
-    notice = problem_notice(result)
-    if notice is not None:
-        console.print(problem_panel(notice))
-        console.print()
-    console.print(Text("Exploratory factor analysis", style="bold underline"))
-    for line in header_lines(result):
-        console.print(line)
-    console.print()
-    for line in result.reasons():
-        console.print(Text(line, style="bold"))
-    console.print(Text(_rules_caution(), style="italic"))
-    console.print()
-    for table in explore_tables(result):
-        console.print(rich_table(table))
-    console.print(solution_line(result))
-    console.print()
-    console.print(Text("Draft model", style="bold"))
-    console.print(Text(result.draft_text), soft_wrap=True)  # the file's lines as written, never wrapped
-    for line in split_lines(result):
-        console.print(Text(line, style="bold"))
-    confirmation = result.split.confirmation if result.split is not None else None
-    if confirmation is not None:
-        console.print(Text("Confirmation half: the draft model fitted", style="bold underline"))
-        notice = T.problem_notice(confirmation)
-        if notice is not None:
-            console.print(problem_panel(notice))
-        for table in confirmation_tables(result):
-            console.print(rich_table(table))
-    if result.notes:
-        console.print(Text("Notes", style="bold"))
-        for line in result.notes:
-            console.print(f"  - {line}")
-
-
 def _rules_caution() -> str:
     from cfa_tool.workflows.explore import RULES_CAUTION
 
     return RULES_CAUTION
-
-
-def render_explore_text(result, width: int = 120) -> str:
-    from cfa_tool.reporting.terminal import SafeConsole
-
-    buffer = io.StringIO()
-    render_explore(result, SafeConsole(file=buffer, width=width, no_color=True, highlight=False, emoji=False, markup=False))
-    return buffer.getvalue()
 
 
 def scree_svg(result, width: int = 560, height: int = 320) -> str:
@@ -277,77 +230,13 @@ def scree_svg(result, width: int = 560, height: int = 320) -> str:
     return "".join(parts)
 
 
-def explore_html_fragment(result) -> str:
-    from cfa_tool.reporting.html_report import table_html
-
-    notice = problem_notice(result)
-    parts = []
-    if notice is not None:
-        items = "".join(f"<li>{esc(line)}</li>" for line in notice.lines)
-        parts.append(f'<div class="problems" id="problems" role="alert"><h2>{esc(notice.heading)}</h2><ul>{items}</ul></div>')
-    parts += [f'<p class="note">{esc(line)}</p>' for line in header_lines(result)]
-    parts += [f'<p class="summary">{esc(line)}</p>' for line in result.reasons()]
-    parts.append(f'<p class="caution">{esc(_rules_caution())}</p>')
-    tables = explore_tables(result)
-    parts += [table_html(tables[0]), table_html(tables[1]), f'<div class="diagram">{scree_svg(result)}</div>']
-    parts += [table_html(t) for t in tables[2:]]
-    parts.append(f"<p>{esc(solution_line(result))}</p>")
-    return "\n".join(parts)
-
-
-def explore_html_report(result) -> str:
-    from cfa_tool.version import __version__
-    from cfa_tool.reporting.html_report import CSS, notice_html, table_html
-
-    fragment = explore_html_fragment(result)
-    banner_end = fragment.index("</div>") + len("</div>") if fragment.startswith('<div class="problems"') else 0
-    sections = [fragment[:banner_end], "<h1>Exploratory factor analysis</h1>", fragment[banner_end:], "<h2>Draft model</h2>",
-                f"<pre>{esc(result.draft_text)}</pre>"]
-    sections += [f'<p class="caution">{esc(line)}</p>' for line in split_lines(result)]
-    confirmation = result.split.confirmation if result.split is not None else None
-    if confirmation is not None:
-        sections.append("<h2>Confirmation half: the draft model fitted</h2>")
-        sections.append(notice_html(T.problem_notice(confirmation)))
-        sections += [table_html(t) for t in confirmation_tables(result)]
-    if result.notes:
-        sections.append("<h2>Notes</h2>")
-        sections.append('<ul class="warnings">' + "".join(f"<li>{esc(w)}</li>" for w in result.notes) + "</ul>")
-    sections.append(f'<p class="note">Made by cfa-tool {esc(__version__)}.</p>')
-    return (f'<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8">'
-            f'<meta name="viewport" content="width=device-width, initial-scale=1">'
-            f"<title>Exploratory factor analysis</title><style>{CSS}</style></head>\n<body>\n"
-            + "\n".join(s for s in sections if s) + "\n</body></html>\n")
-
-
-def explore_markdown(result) -> str:
-    from cfa_tool.reporting.text_formats import markdown_table
-
-    parts = []
-    notice = problem_notice(result)
-    if notice is not None:
-        parts += [f"## {markdown_text(notice.heading)}", ""] + [f"- {markdown_text(line)}" for line in notice.lines] + [""]
-    parts += ["# Exploratory factor analysis", ""]
-    parts += [markdown_text(line) + "  " for line in header_lines(result)] + [""]
-    parts += [f"**{markdown_text(line)}**" for line in result.reasons()] + ["", f"*{markdown_text(_rules_caution())}*", ""]
-    parts += [markdown_table(t) for t in explore_tables(result)]
-    parts += [markdown_text(solution_line(result)), "", "## Draft model", "", "```", result.draft_text.rstrip("\n"), "```", ""]
-    parts += [markdown_text(line) for line in split_lines(result)] + [""]
-    confirmation = result.split.confirmation if result.split is not None else None
-    if confirmation is not None:
-        parts += ["## Confirmation half: the draft model fitted", ""]
-        notice = T.problem_notice(confirmation)
-        if notice is not None:
-            parts += [f"**{markdown_text(notice.heading)}**", ""] + [f"- {markdown_text(x)}" for x in notice.lines] + [""]
-        parts += [markdown_table(t) for t in confirmation_tables(result)]
-    if result.notes:
-        parts += ["## Notes", ""] + [f"- {markdown_text(w)}" for w in result.notes] + [""]
-    return "\n".join(parts)
-
-
 def explore_report(result):
-    """The exploration as the one report model (cfa_tool.reporting.document.Report): what ``--docx``,
-    ``--tables`` and a saved result's report hold."""
-    from cfa_tool.reporting.document import Figure, Report, ResultKind
+    """The exploration as the one report model (cfa_tool.reporting.document.Report) that every view draws
+    (terminal, notebook, HTML, Markdown, Word, tables, a saved result's report): the problems of the solution and
+    of the confirmation half first; the data, the recommendation and its reasons; the notes on the data; the scree
+    plot; the tables of the number of factors, of the solution and of the confirmation half; the draft model as
+    written; the split of the rows (or the caution that the model was chosen from these data); the cautions."""
+    from cfa_tool.reporting.document import Figure, Listing, Report, ResultKind, in_section
 
     notice = problem_notice(result)
     confirmation = result.split.confirmation if result.split is not None else None
@@ -357,12 +246,13 @@ def explore_report(result):
         notice = T.ProblemNotice(notice.heading if notice is not None else second.heading, lines,
                                  second.inadmissible or notice is not None)
     lines = tuple(header_lines(result)) + tuple(result.reasons()) + (solution_line(result),)
-    notes = tuple(split_lines(result)) + ("The draft model file is written by --draft and held in the JSON result.",) \
-        + tuple(result.notes)
-    return Report(ResultKind.EXPLORE, "Exploratory factor analysis", notice, lines,
-                  tuple(explore_tables(result) + confirmation_tables(result)), notes, (_rules_caution(), GUIDE_NOTE),
-                  figures=(Figure("Scree plot: eigenvalues beside those of random data", scree_svg(result)),))
+    count, solution = explore_tables(result)
+    tables = (in_section(COUNT_SECTION, count) + in_section(f"The {result.factors}-factor solution", solution)
+              + in_section(CONFIRMATION_SECTION, confirmation_tables(result)))
+    return Report(ResultKind.EXPLORE, "Exploratory factor analysis", notice, lines, tuple(tables),
+                  tuple(split_lines(result)), (_rules_caution(), GUIDE_NOTE),
+                  figures=(Figure("Scree plot: eigenvalues beside those of random data", scree_svg(result)),),
+                  warnings=tuple(result.notes), listings=(Listing("Draft model", result.draft_text),))
 
 
-__all__ = ["explore_html_fragment", "explore_report", "explore_html_report", "explore_markdown", "render_explore", "render_explore_text",
-           "scree_svg"]
+__all__ = ["explore_report", "scree_svg"]

@@ -8,39 +8,35 @@ from dataclasses import replace
 
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.diagram import BLOCK_LEGEND, legend_text, path_diagram
-from cfa_tool.reporting.document import Figure, Listing, Report, ResultKind
+from cfa_tool.reporting.document import Figure, Listing, Report, ResultKind, in_section
 from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable
 
 NOT_CONVERGED = "The estimation did not converge: nothing in this report is a result."
 
 
-def _in(section: str, tables) -> list[ReportTable]:
-    return [replace(t, section=section) for t in tables if t is not None]
-
-
 def fit_tables(result) -> list[ReportTable]:
     """Every table of a fit in the order of every view, each with the heading of its section: the missing answers
     (a caution about the data, first), the fit (with the normality tests and the local fit in its note), the
     estimates of each group, the local fit, the modification indices and the data."""
-    out = _in("", [T.missing_table(result)])  # a caution about the data: before the results
+    out = in_section("", [T.missing_table(result)])  # a caution about the data: before the results
     if result.fit is not None and result.converged:
         fit = T.fit_table(result)
         extra = [*T.normality_lines(result), T.local_fit_line(result)]
         fit = replace(fit, note=" ".join([fit.note or "", *(line for line in extra if line)]).strip())
-        out += _in("Fit", [fit, T.group_table(result) if result.multigroup else None])
+        out += in_section("Fit", [fit, T.group_table(result) if result.multigroup else None])
     for g, group in enumerate(result.groups):
         heading = "Estimates" + (f", group {group.label} (N = {group.data.n_obs})" if result.multigroup else "")
-        out += _in(heading, [*T.estimate_tables(result, g), T.reliability_table(result, g),
+        out += in_section(heading, [*T.estimate_tables(result, g), T.reliability_table(result, g),
                              T.sum_score_table(result, g), T.distinct_table(result, g), T.case_table(result, g)])
     for g, group in enumerate(result.groups):
         heading = "Local fit" + (f", group {group.label}" if result.multigroup else "")
-        out += _in(heading, [T.residual_table(result, g)])
-    out += _in("Modification indices", [T.modification_table(result)])
+        out += in_section(heading, [T.residual_table(result, g)])
+    out += in_section("Modification indices", [T.modification_table(result)])
     data = [T.item_table(result)]
     for g in range(len(result.groups)):
         data += [T.category_table(result, g), T.correlation_table(result, g)]
-    out += _in("Data", data + T.label_tables(result))
+    out += in_section("Data", data + T.label_tables(result))
     return out
 
 
@@ -63,6 +59,7 @@ def fit_report(result) -> Report:
     figures = tuple(Figure("Path diagram of the fitted model" + ("" if g.label is None else f", group {g.label}")
                            + " (standardized values)", path_diagram(result, k), _figure_note(result))
                     for k, g in enumerate(result.groups))
+    left_out = T.matrices_left_out(result)
     return Report(ResultKind.FIT, result.model_name, T.problem_notice(result), lines, tuple(fit_tables(result)),
-                  (), (HIGH_STAKES_NOTE,), methods_paragraph(result), figures, T.problem_table(result), warnings,
+                  () if left_out is None else (left_out,), (HIGH_STAKES_NOTE,), methods_paragraph(result), figures, T.problem_table(result), warnings,
                   (Listing("Model", result.model_text),))

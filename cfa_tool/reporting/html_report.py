@@ -25,22 +25,13 @@ ul.warnings li{margin:.3em 0}
 .problems.caution-only{background:#fff7e6;border-color:#e0a030} .problems h2{border:none;margin:.2em 0;color:#b3261e}
 .problems li{margin:.35em 0} tr.problem td{background:#fdecea;color:#8c1d18;font-weight:bold}
 td.faint{color:#aaa}
+table.matrix td,table.matrix th{padding:.15em .35em} table.matrix td.l{white-space:nowrap}
 """
 
 
-HEAT_FULL = 0.15  # |value| at which a shaded cell has its full colour
-HEAT_LEGEND = f"Shading: red positive, blue negative, full colour at {HEAT_FULL:g} or more in size.".replace("0.", ".")
-
-
 def _heat(text: str) -> str:
-    """The style of a shaded cell: red for a positive value, blue for a negative one, stronger with size."""
-    try:
-        value = float(text)
-    except ValueError:
-        return ""
-    strength = min(abs(value) / HEAT_FULL, 1.0)
-    colour = f"rgba(200,40,40,{strength:.2f})" if value > 0 else f"rgba(40,80,200,{strength:.2f})"
-    return f' style="background:{colour}"'
+    colour = T.heat_colour(text)
+    return "" if colour is None else f' style="background:{colour}"'
 
 
 def table_html(table: ReportTable) -> str:
@@ -51,9 +42,10 @@ def table_html(table: ReportTable) -> str:
                              f'{_heat(v) if table.heat and a == "r" else ""}>{esc(v)}</td>'
                              for j, (v, a) in enumerate(zip(row, table.align))) + "</tr>"
                    for k, row in enumerate(table.rows))
-    note = " ".join(text for text in (table.note, HEAT_LEGEND if table.heat else "") if text)
+    note = " ".join(text for text in (table.note, T.HEAT_LEGEND if table.heat else "") if text)
     note = f'<p class="note">{esc(note)}</p>' if note else ""
-    return (f'<table id="{esc(table.key)}"><caption>{esc(table.title)}</caption><thead><tr>{head}</tr></thead>'
+    matrix = ' class="matrix"' if table.matrix else ""  # a matrix of the items: compact cells
+    return (f'<table id="{esc(table.key)}"{matrix}><caption>{esc(table.title)}</caption><thead><tr>{head}</tr></thead>'
             f"<tbody>{body}</tbody></table>{note}")
 
 

@@ -21,7 +21,13 @@ HIGH_STAKES_NOTE = (
     "If this scale is used for decisions about people (screening, hiring, diagnosis), such use needs evidence of "
     "validity for that purpose and the judgement of a licensed professional under local rules."
 )
-MAX_RESIDUAL_MATRIX = 20
+# items of a matrix of the items (correlations, residual correlations) that the terminal shows: a wider one is cut
+# into parts of a few columns each; the HTML, Markdown and Word reports and the table files show up to MAX_MATRIX
+# (beyond, its cells are too small to read, and the report says where it is left out)
+MAX_TERMINAL_MATRIX = 20
+MAX_MATRIX = 60
+HEAT_FULL = 0.15  # |value| at which a shaded cell has its full colour
+HEAT_LEGEND = f"Shading: red positive, blue negative, full colour at {HEAT_FULL:g} or more in size.".replace("0.", ".")
 
 KIND_TITLES = {
     "loading": "Loadings",
@@ -50,7 +56,8 @@ class ReportTable:
     values: tuple[tuple, ...] | None = None
     faint: tuple[tuple[int, int], ...] = ()  # (row, column) cells shown faintly (e.g. small loadings)
     section: str = ""  # the heading of the part of the report the table opens or continues ('' for none)
-    heat: bool = False  # numeric cells shaded by sign and size where a view can colour them (HTML)
+    heat: bool = False  # numeric cells shaded by sign and size where a view can colour them (HTML, Word)
+    matrix: bool = False  # a matrix of the items: left out of the terminal beyond MAX_TERMINAL_MATRIX items
 
     def to_dict(self) -> dict:
         """The table as JSON holds it (a saved result carries its report: see reporting.document)."""
@@ -58,7 +65,8 @@ class ReportTable:
                 "rows": [list(r) for r in self.rows], "note": self.note, "flagged": list(self.flagged),
                 "value_columns": None if self.value_columns is None else list(self.value_columns),
                 "values": None if self.values is None else [[_plain(v) for v in row] for row in self.values],
-                "faint": [list(f) for f in self.faint], "section": self.section, "heat": self.heat}
+                "faint": [list(f) for f in self.faint], "section": self.section, "heat": self.heat,
+                "matrix": self.matrix}
 
     @classmethod
     def from_dict(cls, d: dict) -> "ReportTable":
@@ -69,7 +77,7 @@ class ReportTable:
                     None if d.get("value_columns") is None else tuple(map(str, d["value_columns"])),
                     None if d.get("values") is None else tuple(tuple(r) for r in d["values"]),
                     tuple((int(i), int(j)) for i, j in d.get("faint", ())), str(d.get("section", "")),
-                    bool(d.get("heat", False)))
+                    bool(d.get("heat", False)), bool(d.get("matrix", False)))
         width = len(table.columns)
         if (not width or len(table.align) != width or any(a not in ("l", "r") for a in table.align)
                 or any(len(r) != width for r in table.rows)
@@ -156,44 +164,82 @@ def unadjusted_label(label: str) -> str:
     return f"{label} ({UNADJUSTED})" if cut < 0 else f"{label[:cut]} ({UNADJUSTED}){label[cut:]}"
 
 
-def fit_table(result) -> ReportTable:
-    f = result.fit
-    low, high = f.rmsea_ci90
-    rows = [
-        ["Chi-square test", f"{f.chi_square:.3f} on {f.df} df, p {p_phrase(f.p_value)}", "p > .05 (very sensitive to N)"],
-        ["CFI", index_text(f.cfi), ">= .95"],
-        ["TLI", index_text(f.tli), ">= .95"],
-        ["RMSEA [90% interval]", f"{index_text(f.rmsea)} [{unit(low)}, {unit(high)}]", "<= .06"],
-        ["  test of close fit (RMSEA <= .05)", f"p {p_phrase(f.rmsea_p_close)}", ""],
-        ["SRMR", unit(f.srmr), "<= .08"],
-    ]
-    if missing(f.rmsea_p_close):
-        rows = [r for r in rows if not r[0].startswith("  test of close fit")]
+@dataclass(frozen=True)
+class FitRow:
+    """One line of the fit table: its words (index, value, guide) and its numbers for data files, one row of
+    (index, value, df, p, 90% lower, 90% upper) or more (AIC, BIC and adjusted BIC share a line of words)."""
+
+    label: str
+    text: str
+    guide: str
+    values: tuple[tuple, ...]
+
+    def unadjusted(self) -> "FitRow":
+        """The line among the unadjusted figures, after the robust ones: marked, without a guide value."""
+        return FitRow(unadjusted_label(self.label), self.text, "for reference only",
+                      tuple((unadjusted_label(v[0]), *v[1:]) for v in self.values))
+
+
+def _row(label: str, text: str, guide: str, *values: tuple) -> FitRow:
+    """A line whose numbers are (index, value[, df, p, 90% lower, 90% upper]), the missing ones None."""
+    return FitRow(label, text, guide, tuple(tuple(v) + (None,) * (6 - len(v)) for v in values))
+
+
+JUST_IDENTIFIED = "the model is just-identified: it reproduces the data exactly, so its fit cannot be tested"
+
+
+def fit_rows(result) -> list[FitRow]:
+    """The lines of the fit table in the order of every view: with a robust test, its figures first, then SRMR,
+    then the unadjusted ones marked (without the test of close fit); the baseline, the likelihood and the count
+    of free parameters last."""
+    f, r = result.fit, result.robust
+    chi = ("Chi-square", f.chi_square, f.df, f.p_value)
     if f.df == 0:  # nothing to test: CFI, TLI and RMSEA are not defined
-        rows = [["Chi-square test", "0 df: no test", "the model is just-identified: it reproduces the data exactly, "
-                                                     "so its fit cannot be tested"], rows[-1]]
-    r = result.robust
-    if r is not None:
+        plain = [_row("Chi-square test", "0 df: no test", JUST_IDENTIFIED, chi)]
+    else:
+        low, high = f.rmsea_ci90
+        plain = [_row("Chi-square test", f"{f.chi_square:.3f} on {f.df} df, p {p_phrase(f.p_value)}",
+                      "p > .05 (very sensitive to N)", chi),
+                 _row("CFI", index_text(f.cfi), ">= .95", ("CFI", f.cfi)),
+                 _row("TLI", index_text(f.tli), ">= .95", ("TLI", f.tli)),
+                 _row("RMSEA [90% interval]", f"{index_text(f.rmsea)} [{unit(low)}, {unit(high)}]", "<= .06",
+                      ("RMSEA", f.rmsea, None, None, low, high))]
+        if not missing(f.rmsea_p_close) and r is None:
+            plain.append(_row("  test of close fit (RMSEA <= .05)", f"p {p_phrase(f.rmsea_p_close)}", "",
+                              ("Test of close fit (RMSEA <= .05)", None, None, f.rmsea_p_close)))
+    srmr = _row("SRMR", unit(f.srmr), "<= .08", ("SRMR", f.srmr))
+    if r is None:
+        rows = plain + [srmr]
+    else:
         rlow, rhigh = r.rmsea_robust_ci90
-        robust = [
-            [f"Scaled chi-square ({r.test.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, p {p_phrase(r.p_value_scaled)}",
-             "the test to read for these data"],
-            _correction_row(r),
-            ["Robust CFI / TLI", f"{index_text(r.cfi_robust)} / {index_text(r.tli_robust)}", ">= .95"],
-            ["Robust RMSEA [90% interval]", f"{index_text(r.rmsea_robust)} [{unit(rlow)}, {unit(rhigh)}]", "<= .06"],
-        ]
-        # the figures to read first; the unadjusted ones after SRMR, marked, without guide values
-        srmr = rows.pop()
-        rows = robust + [srmr] + [[unadjusted_label(label), value, "for reference only"] for label, value, _ in rows
-                                  if (label != "Chi-square test" or f.df > 0) and not label.startswith("  test of close")]
-    rows.append(["Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", ""])
+        label, text, guide = _correction_row(r)
+        rows = [_row(f"Scaled chi-square ({r.test.label})", f"{r.chi_square_scaled:.3f} on {r.df} df, "
+                     f"p {p_phrase(r.p_value_scaled)}", "the test to read for these data",
+                     (f"Scaled chi-square ({r.test.label})", r.chi_square_scaled, r.df, r.p_value_scaled)),
+                _row(label, text, guide, *[(name.capitalize(), value) for name, value in r.pieces]),
+                _row("Robust CFI / TLI", f"{index_text(r.cfi_robust)} / {index_text(r.tli_robust)}", ">= .95",
+                     ("Robust CFI", r.cfi_robust), ("Robust TLI", r.tli_robust)),
+                _row("Robust RMSEA [90% interval]", f"{index_text(r.rmsea_robust)} [{unit(rlow)}, {unit(rhigh)}]",
+                     "<= .06", ("Robust RMSEA", r.rmsea_robust, None, None, rlow, rhigh)),
+                srmr] + [row.unadjusted() for row in plain if f.df > 0]
+    rows.append(_row("Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", "",
+                     ("Baseline (independence) chi-square", f.baseline_chi_square, f.baseline_df)))
     if not missing(f.log_likelihood):  # least-squares estimators have no likelihood
-        rows += [["Log-likelihood", num(f.log_likelihood), ""],
-                 ["AIC / BIC / adjusted BIC", f"{num(f.aic)} / {num(f.bic)} / {num(f.sabic)}", "lower is better"]]
-    rows.append(["Free parameters", str(f.n_free_parameters), ""])
+        rows += [_row("Log-likelihood", num(f.log_likelihood), "", ("Log-likelihood", f.log_likelihood)),
+                 _row("AIC / BIC / adjusted BIC", f"{num(f.aic)} / {num(f.bic)} / {num(f.sabic)}", "lower is better",
+                      ("AIC", f.aic), ("BIC", f.bic), ("Adjusted BIC", f.sabic))]
+    rows.append(_row("Free parameters", str(f.n_free_parameters), "", ("Free parameters", f.n_free_parameters)))
+    return rows
+
+
+def fit_table(result) -> ReportTable:
+    r = result.robust
+    rows = fit_rows(result)
     note = _unusable(result) + GUIDE_NOTE + (" " + robust_definition(r) if r is not None else "")
-    return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")], rows, note,
-                  values=(["Index", "Value", "df", "p", "90% lower", "90% upper"], _fit_values(result)))
+    return _table("fit", "Model fit", [("Index", "l"), ("Value", "r"), ("Guide", "l")],
+                  [[x.label, x.text, x.guide] for x in rows], note,
+                  values=(["Index", "Value", "df", "p", "90% lower", "90% upper"],
+                          [list(v) for x in rows for v in x.values]))
 
 
 def _correction_row(r) -> list[str]:
@@ -213,33 +259,6 @@ def robust_definition(r) -> str:
                 f"and of the baseline model (ordinal items); SRMR over the off-diagonal polychoric correlations.")
     return ("Robust CFI, TLI and RMSEA: the population-corrected definitions of Brosseau-Liard, Savalei & Li (2012) "
             "and Brosseau-Liard & Savalei (2014), not the indices of the scaled statistic.")
-
-
-def _fit_values(result) -> list[list]:
-    """The fit table's numbers, one index per row (for data files)."""
-    f, r, nan = result.fit, result.robust, None
-    plain = [["Chi-square", f.chi_square, f.df, f.p_value, nan, nan]]
-    if f.df > 0:
-        plain += [["CFI", f.cfi, nan, nan, nan, nan], ["TLI", f.tli, nan, nan, nan, nan],
-                  ["RMSEA", f.rmsea, nan, nan, *f.rmsea_ci90]]
-        if not missing(f.rmsea_p_close):
-            plain.append(["Test of close fit (RMSEA <= .05)", nan, nan, f.rmsea_p_close, nan, nan])
-    srmr = ["SRMR", f.srmr, nan, nan, nan, nan]
-    if r is None:
-        rows = plain + [srmr]
-    else:  # as the table shows them: the robust figures first, the unadjusted ones after SRMR, marked
-        rows = [[f"Scaled chi-square ({r.test.label})", r.chi_square_scaled, r.df, r.p_value_scaled, nan, nan],
-                *[[name.capitalize(), value, nan, nan, nan, nan] for name, value in r.pieces],
-                ["Robust CFI", r.cfi_robust, nan, nan, nan, nan], ["Robust TLI", r.tli_robust, nan, nan, nan, nan],
-                ["Robust RMSEA", r.rmsea_robust, nan, nan, *r.rmsea_robust_ci90], srmr,
-                *[[unadjusted_label(row[0]), *row[1:]] for row in plain
-                  if (row[0] != "Chi-square" or f.df > 0) and not row[0].startswith("Test of close")]]
-    rows.append(["Baseline (independence) chi-square", f.baseline_chi_square, f.baseline_df, nan, nan, nan])
-    if not missing(f.log_likelihood):
-        rows += [["Log-likelihood", f.log_likelihood, nan, nan, nan, nan], ["AIC", f.aic, nan, nan, nan, nan],
-                 ["BIC", f.bic, nan, nan, nan, nan], ["Adjusted BIC", f.sabic, nan, nan, nan, nan]]
-    rows.append(["Free parameters", f.n_free_parameters, nan, nan, nan, nan])
-    return rows
 
 
 def _scale_phrase(result, factor: str) -> str:
@@ -447,7 +466,7 @@ def estimate_tables(result, group: int = 0) -> list[ReportTable]:
 def residual_table(result, group: int = 0) -> ReportTable | None:
     """Lower triangle of the residual correlations (sample minus model)."""
     names = result.observed
-    if len(names) > MAX_RESIDUAL_MATRIX or len(names) < 2 or not result.converged:
+    if len(names) > MAX_MATRIX or len(names) < 2 or not result.converged:
         return None
     r = result.groups[group].residual_correlations
     rows = [[f"{i + 1} {name}"] + [unit(r[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
@@ -455,7 +474,7 @@ def residual_table(result, group: int = 0) -> ReportTable | None:
     table = _table(f"residuals_{group}", "Residual correlations (sample minus model)",
                    [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows,
                    "Positive: the model underestimates the correlation of the two items; negative: it overestimates it.")
-    return replace(table, heat=True)
+    return replace(table, heat=True, matrix=True)
 
 
 def group_table(result) -> ReportTable:
@@ -766,7 +785,7 @@ def pair_rows_phrase(data) -> str:
 def correlation_table(result, group: int = 0) -> ReportTable | None:
     """The items' sample correlations (lower triangle), with the number of rows they come from."""
     names = result.observed
-    if len(names) > MAX_RESIDUAL_MATRIX or len(names) < 2:
+    if len(names) > MAX_MATRIX or len(names) < 2:
         return None
     g = result.groups[group]
     S = g.sample_covariance
@@ -785,8 +804,40 @@ def correlation_table(result, group: int = 0) -> ReportTable | None:
         (result.method.full_information,
          "With full-information estimation: the saturated model's estimates from every answer."),
     ) if applies]
-    return _table(f"correlations_{group}", f"Correlations of the items{where} ({rows_used})",
-                  [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows, " ".join(said) or None)
+    table = _table(f"correlations_{group}", f"Correlations of the items{where} ({rows_used})",
+                   [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows, " ".join(said) or None)
+    return replace(table, matrix=True)
+
+
+def matrices_left_out(result) -> str | None:
+    """Where the item matrices (correlations, residual correlations) are left out of every view, and why."""
+    items = len(result.observed)
+    if items <= MAX_MATRIX:
+        return None
+    return (f"The correlations of the items and the residual correlations are not shown as tables: {items} items "
+            f"are more than the {MAX_MATRIX} a matrix stays readable with. The JSON result (--json) holds the "
+            f"residual correlations; the largest is named under the fit.")
+
+
+def terminal_matrix_left_out(table: ReportTable) -> str | None:
+    """Why a matrix of the items is not drawn in the terminal (None: it is): too many items to read there."""
+    items = len(table.rows) + 1
+    if not table.matrix or items <= MAX_TERMINAL_MATRIX:
+        return None
+    return (f"{table.title}: {items} items, more than the {MAX_TERMINAL_MATRIX} a terminal shows readably; the HTML, "
+            f"Markdown and Word reports and the --tables files hold it.")
+
+
+def heat_colour(text: str) -> str | None:
+    """The shade of a matrix cell as #rrggbb (None for a cell that is no number): red for a positive value, blue
+    for a negative one, stronger with size up to HEAT_FULL."""
+    try:
+        value = float(text)
+    except ValueError:
+        return None
+    strength = min(abs(value) / HEAT_FULL, 1.0) if np.isfinite(value) else 0.0
+    full = (200, 40, 40) if value > 0 else (40, 80, 200)
+    return "#" + "".join(f"{round(255 + (c - 255) * strength):02x}" for c in full)
 
 
 def normality_lines(result) -> list[str]:

@@ -124,7 +124,10 @@ def render_report(report, console: Console) -> None:
         if table.section and table.section != section:
             console.print(Text(table.section, style="bold reverse"))
         section = table.section
-        console.print(rich_table(table))
+        left_out = T.terminal_matrix_left_out(table)
+        console.print(rich_table(table) if left_out is None else Text(left_out, style="dim"))
+        if left_out is not None:
+            console.print()
     for listing in report.listings:
         console.print(Text(listing.title, style="bold"))
         console.print(Text(printable(listing.text, keep_newlines=True)))

@@ -98,7 +98,7 @@ def test_compare_and_invariance_reports_carry_the_caution(weak_fit):
     grouped = data.assign(site=np.where(np.arange(len(data)) % 2 == 0, "east", "west"))
     ladder = invariance(TRAITS + METHOD, grouped, group="site")
     text = invariance_report(ladder).notice.lines
-    assert any("the configural model: group" in line and "method factor m" in line for line in text)
+    assert any("The configural model: group" in line and "method factor m" in line for line in text)
 
 
 def test_the_paragraph_names_a_method_factors_items_and_keeps_its_loadings_apart():

@@ -78,7 +78,7 @@ def test_pattern_loadings_follow_the_published_structure_and_small_ones_are_fain
     assert len({top[0], top[1], top[2]}) == 1 and len({top[3], top[4], top[5]}) == 1 and len({top[6], top[7], top[8]}) == 1
     assert len({top[0], top[3], top[6]}) == 3
     assert result["solution"]["oblique"] and result["solution"]["structure"] is not None
-    assert 'class="r faint"' in html and "<svg" in html and "Scree plot" in html
+    assert 'class="r faint"' in html and "data:image/svg+xml;base64," in html and "Scree plot" in html
     small = int((np.abs(pattern) < 0.30).sum()) + int((np.abs(np.array(result["solution"]["structure"])) < 0.30).sum())
     assert html.count('class="r faint"') == small  # every small pattern and structure loading, and only those
 
@@ -157,7 +157,7 @@ def test_python_entry_point(hs_data):
     result = cfa_tool.explore(hs_data, items=ITEMS, factors=3, rotation="geomin")
     assert dataclasses.is_dataclass(result) and result.__dataclass_params__.frozen
     assert result.factors == 3 and result.to_dict()["solution"]["rotation"] == "geomin"
-    assert "Pattern loadings" in result.summary() and "<svg" in result._repr_html_()
+    assert "Pattern loadings" in result.summary() and "data:image/svg+xml;base64," in result._repr_html_()
     with pytest.raises(OptionError, match="needs a target"):
         cfa_tool.explore(hs_data, items=ITEMS, rotation="target")
     frame = pd.DataFrame(hs_data[ITEMS])

@@ -7,7 +7,10 @@ from __future__ import annotations
 import numpy as np
 
 import cfa_tool
-from cfa_tool.reporting.explore_report import explore_html_report, explore_markdown, loading_table
+from cfa_tool.reporting.explore_report import loading_table
+from cfa_tool.reporting.html_report import report_html
+from cfa_tool.reporting.reports import report_of
+from cfa_tool.reporting.text_formats import report_markdown
 
 ITEMS = [f"x{i}" for i in range(1, 10)]
 
@@ -26,5 +29,5 @@ def test_pattern_table_shows_each_loading_with_its_standard_error(hs_data):
     # faint: the small loadings only, not their standard errors
     small = int((np.abs(ex.rotated.pattern) < ex.draft.threshold).sum())
     assert len(table.faint) == small and all(col % 2 == 1 for _, col in table.faint)
-    for report in (explore_markdown(result), explore_html_report(result), " ".join(result.summary().split())):
+    for report in (report_markdown(report_of(result)), report_html(report_of(result)), " ".join(result.summary().split())):
         assert "SE: standard errors of the pattern loadings by the delta method" in report

@@ -16,7 +16,7 @@ from docx.oxml.ns import qn
 
 import cfa_tool
 from cfa_tool.reporting import tables as T
-from cfa_tool.reporting.document import WARNINGS
+from cfa_tool.reporting.document import WARNINGS, sentence
 from cfa_tool.reporting.docx_report import report_docx
 from cfa_tool.reporting.fit_document import fit_report
 from cfa_tool.reporting.html_report import report_html
@@ -126,7 +126,7 @@ def test_the_data_cautions_come_right_under_the_title(troubled):
     first_table = report.tables[0].title
     for text in (report_text(report, 100), report_markdown(report), _word_text(report_docx(report, 72))):
         text = _plain(text)
-        listwise = text.index("listwise deletion left out 45 of 301 rows")
+        listwise = text.index("Listwise deletion left out 45 of 301 rows")  # (as a sentence: document.sentence)
         assert text.index(report.title) < listwise < text.index(first_table)
         assert listwise < text.index("A confirmatory factor analysis")  # before the methods paragraph
 
@@ -135,7 +135,7 @@ def test_the_word_report_holds_the_normality_tests_and_the_warnings(troubled):
     texts = [_plain(p.text) for p in docx.Document(io.BytesIO(report_docx(fit_report(troubled), 72))).paragraphs]
     [normality] = T.normality_lines(troubled)
     assert any(_plain(normality) in t for t in texts)  # under the fit table, in its note
-    assert _plain(troubled.warnings[0]) in texts
+    assert _plain(sentence(troubled.warnings[0])) in texts
     assert WARNINGS in texts
 
 
@@ -146,15 +146,48 @@ def test_the_methods_paragraph_names_no_option_where_the_advice_does(troubled):
     assert not re.search(r"--[a-z]", report_markdown(report).split("## Summary for a paper")[1].split("##")[0])
 
 
-def test_the_residual_matrix_is_shaded_in_html_only(troubled):
+def test_the_residual_matrix_is_shaded_in_html_and_word(troubled):
     report = fit_report(troubled)
     residuals = next(t for t in report.tables if t.key == "residuals_0")
-    assert residuals.heat and residuals.section == "Local fit"
+    assert residuals.heat and residuals.matrix and residuals.section == "Local fit"
     page = report_html(report)
-    table = page[page.index('<table id="residuals_0">'):]
+    table = page[page.index('<table id="residuals_0" class="matrix">'):]
     table = table[:table.index("</table>")]
-    assert table.count("background:rgba(200,40,40") + table.count("background:rgba(40,80,200") > 0
-    assert "background:" not in report_markdown(report)
+    # the shade of a cell: its colour (red positive, blue negative) mixed with white by |value| / .15
+    cells = re.findall(r'style="background:(#[0-9a-f]{6})">([^<]*)<', table)
+    assert cells and all(colour == T.heat_colour(text) for colour, text in cells)
+    assert T.heat_colour(".30") == "#c82828" and T.heat_colour("-.15") == "#2850c8" and T.heat_colour(".00") == "#ffffff"
+    assert T.heat_colour("-.03") == "#" + "".join(f"{round(255 + (c - 255) * 0.2):02x}" for c in (40, 80, 200))
+    assert "background:" not in report_markdown(report) and T.HEAT_LEGEND in page
+    word = docx.Document(io.BytesIO(report_docx(report)))
+    shaded = [cell for t in word.tables for row in t.rows for cell in row.cells
+              if cell._tc.tcPr is not None and cell._tc.tcPr.find(qn("w:shd")) is not None]
+    assert len(shaded) == len(cells)
+    for cell in shaded:
+        properties = [child.tag for child in cell._tc.tcPr]  # in the order the format requires (shd before noWrap)
+        assert properties.index(qn("w:shd")) < properties.index(qn("w:noWrap"))
+        assert "#" + cell._tc.tcPr.find(qn("w:shd")).get(qn("w:fill")) == T.heat_colour(cell.text.replace("\u2212", "-"))
+
+
+def test_a_matrix_of_more_items_than_a_terminal_shows_is_in_the_files_and_said_in_the_terminal():
+    from tests.conftest import simulate_cfa
+
+    items = T.MAX_TERMINAL_MATRIX + 5
+    data = simulate_cfa(np.full((items, 1), 0.6), np.eye(1), np.eye(items) * 0.64, 400, seed=2)
+    result = cfa_tool.fit("factor f: " + ", ".join(data.columns) + "\n", data)
+    report = fit_report(result)
+    matrices = [t for t in report.tables if t.matrix]
+    assert [t.key for t in matrices] == ["residuals_0", "correlations_0"] and all(len(t.rows) == items - 1 for t in matrices)
+    text = " ".join(report_text(report).split())
+    for table in matrices:
+        assert f"{table.title}: {items} items, more than the {T.MAX_TERMINAL_MATRIX} a terminal shows readably" in text
+        assert f'<table id="{table.key}" class="matrix">' in report_html(report)
+    assert not report.notes  # not left out of the files
+    # beyond MAX_MATRIX items no view shows the matrices, and the report says so and where the values are
+    wide = type("Wide", (), {"observed": tuple(f"q{k}" for k in range(T.MAX_MATRIX + 1))})()
+    assert T.matrices_left_out(wide).startswith(f"The correlations of the items and the residual correlations are not "
+                                                f"shown as tables: {T.MAX_MATRIX + 1} items")
+    assert T.matrices_left_out(result) is None
 
 
 def test_a_saved_fit_gives_the_same_views_again(troubled):

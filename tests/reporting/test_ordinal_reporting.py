@@ -92,3 +92,32 @@ def test_weighted_descriptives_say_what_is_weighted():
     assert "counted once each, unweighted" in counts.note
     plain = cfa_tool.fit("factor f: a, b, c, d\n", data.drop(columns="w"), ordinal="all")
     assert "weighted" not in T.item_table(plain).note and "weighted" not in T.category_table(plain).note
+
+
+def test_the_json_names_the_pieces_of_the_scale_shifted_statistic_and_older_files_still_report(ordinal_fit, tmp_path,
+                                                                                              capsys):
+    import json
+    import shutil
+    from pathlib import Path
+
+    from cfa_tool.cli import main
+
+    result, _ = ordinal_fit
+    out = result.to_dict()["robust"]
+    # statistic = scale x chi-square + shift (Asparouhov & Muthen 2010): the pieces, and the mean-adjusted scaling
+    # tr(U Gamma) / df under its own name, not as a scaling factor of this statistic
+    assert result.fit.chi_square * out["scale"] + out["shift"] == pytest.approx(out["chi_square_scaled"], rel=1e-12)
+    assert "scaling_factor" not in out and "baseline_scaling_factor" not in out
+    assert out["mean_adjusted_scaling"] == pytest.approx(result.robust.scaling_factor)
+    # a result saved with the previous layout (scaling_factor and baseline_scaling_factor keys) still reports
+    old = Path(__file__).parents[1] / "commands" / "bad_inputs" / "data" / "ordinal_fit.json"
+    saved = json.loads(old.read_text())
+    assert "scaling_factor" in saved["robust"] and "baseline_scaling_factor" in saved["robust"]
+    copy = tmp_path / "old.json"
+    shutil.copy(old, copy)
+    code = main(["report", str(copy), "--markdown", str(tmp_path / "old.md")])
+    capsys.readouterr()
+    shown = (tmp_path / "old.md").read_text()
+    assert code == 0 and all(f"**{t['title']}**" in shown for t in saved["report"]["tables"] if "_" not in t["title"])
+    assert "Scaled chi-square" in shown
+    assert copy.read_bytes() == old.read_bytes()  # the saved file left as it was

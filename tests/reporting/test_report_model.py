@@ -138,25 +138,19 @@ def test_every_format_holds_the_same_tables_and_report_writes_them_again(command
     report = Report.from_dict(saved["report"])
     assert report.tables, "a report without tables"
     titles = [t.title for t in report.tables]
-    # the terminal: 80 columns, the title and every table's title (the exploration keeps its own layout, which
-    # shows the problems first too, and prints its draft model's lines as the file holds them)
-    if command != "explore":
-        assert max(len(line) for line in _report_lines(text)) <= 80
-    if command != "explore":
-        assert report.title.split(" (")[0] in " ".join(text.split())
-        for title in titles:
-            assert title in " ".join(text.split())  # a long title wraps
+    # the terminal: 80 columns, the title and every table's title
+    assert max(len(line) for line in _report_lines(text)) <= 80
+    assert report.title.split(" (")[0] in " ".join(text.split())
+    for title in titles:
+        assert title in " ".join(text.split())  # a long title wraps
     # HTML: every report table with its caption and cells
     shown = {caption: rows for caption, rows in _html_tables(written[1])}
     for table in report.tables:
-        if command == "explore" and table.title not in shown:
-            continue  # the exploration's own page shows its main tables (the Word file has all)
         assert shown[table.title] == [list(r) for r in table.rows], table.title
     # Markdown: every title
     markdown = written[2].read_text()
-    if command != "explore":
-        for title in titles:
-            assert f"**{markdown_text(title)}**" in markdown
+    for title in titles:
+        assert f"**{markdown_text(title)}**" in markdown
     # Word: numbered tables with the same titles and cells, problems first
     word = _docx_tables(written[3])
     assert [t for t, _ in word] == titles
@@ -192,9 +186,8 @@ def test_every_format_holds_the_same_tables_and_report_writes_them_again(command
         assert replayed[table.title] == [list(r) for r in table.rows]
     for name in names:
         assert (again / "tables" / name).read_text() == (written[4] / name).read_text(), name
-    if command != "explore":
-        assert (again / "r.md").read_text() == markdown
-        assert (again / "r.html").read_text() == written[1].read_text()
+    assert (again / "r.md").read_text() == markdown
+    assert (again / "r.html").read_text() == written[1].read_text()
 
 
 def test_problems_come_first_in_the_report_of_a_comparison(hs_data):

@@ -181,3 +181,31 @@ def test_every_view_gives_the_option_of_a_remedy_and_the_methods_paragraph_none(
     method = texts[texts.index("Method and results") + 1]
     assert "--" not in method and method.startswith("A confirmatory factor analysis")
     assert any(f"({Remedy.COMPLETE_ROWS.option})" in t for t in texts)
+
+
+def test_a_matrix_column_is_as_wide_as_its_cells_with_true_minus_signs_and_its_properties_are_in_order():
+    # 40 items of residual correlations such as -.05: each column holds '−.05' (U+2212, which Times sets at .564
+    # of the type size, a hyphen at .333: Adobe's Times-Roman metrics, recalled from memory) on one line
+    from cfa_tool.reporting.docx_report import WIDE_PADDING, WIDTH_MARGIN
+
+    n = 40
+    rows = tuple((f"{i + 1} y{i + 1}",) + ("-.05",) * i + ("",) * (n - 1 - i) for i in range(1, n))
+    table = ReportTable("residuals_0", "Residual correlations", ("",) + tuple(str(k) for k in range(1, n)),
+                        ("l",) + ("r",) * (n - 1), rows, heat=True, matrix=True)
+    document = docx.Document(io.BytesIO(report_docx(Report(ResultKind.FIT, "Matrix", None, (), (table,)))))
+    least = WIDTH_MARGIN * WIDE_SIZE * (564 + 278 + 500 + 500) / 1000 + WIDE_PADDING
+    columns = [int(c.get(qn("w:w"))) / 20 for grid in document.tables
+               for c in grid._tbl.tblGrid.findall(qn("w:gridCol"))[1:]]
+    assert len(columns) == n - 1 and min(columns) >= least - 0.05  # (twentieths of a point, rounded)
+    # properties in the order of the format (ECMA-376 Part 1, 17.4.60 and 17.4.70): the cell margins before the
+    # table's look, a cell's shading and borders before its no-wrap
+    for grid in document.tables:
+        tags = [child.tag for child in grid._tbl.tblPr]
+        assert tags.index(qn("w:tblCellMar")) < tags.index(qn("w:tblLook"))
+        for row in grid.rows[1:]:
+            for cell in row.cells[1:]:
+                tags = [child.tag for child in cell._tc.tcPr]
+                if qn("w:shd") in tags:
+                    assert tags.index(qn("w:shd")) < tags.index(qn("w:noWrap"))
+                if qn("w:tcBorders") in tags:
+                    assert tags.index(qn("w:tcBorders")) < tags.index(qn("w:noWrap"))

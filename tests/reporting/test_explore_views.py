@@ -1,0 +1,55 @@
+"""An exploration is one report (cfa_tool.reporting.document.Report) drawn by the shared renderers, and it says
+every word and number its former layout of its own said: the words of that layout's terminal text, HTML page
+and Markdown file, kept for two seeded runs on the Holzinger & Swineford (1939) data in
+data/explore_words_before.json, are all found in the same format of the report model's views (layout may change)."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+
+from cfa_tool.reporting.html_report import report_html
+from cfa_tool.reporting.reports import report_of
+from cfa_tool.reporting.terminal import report_text
+from cfa_tool.reporting.text_formats import report_markdown
+from tests.reporting.explore_words import CASES, case, html_words, markdown_words, words
+
+BEFORE = json.loads((Path(__file__).parent / "data" / "explore_words_before.json").read_text())
+
+
+@pytest.fixture(scope="module", params=sorted(CASES))
+def shown(request):
+    result = case(request.param)
+    report = report_of(result)
+    return request.param, result, report
+
+
+def test_every_word_and_number_of_the_former_layout_is_in_each_format(shown):
+    name, result, report = shown
+    views = {"text": words(report_text(report)), "html": html_words(report_html(report)),
+             "markdown": markdown_words(report_markdown(report))}
+    for view, found in views.items():
+        missing = set(BEFORE[name][view]) - found
+        assert not missing, f"{name}, {view}: {sorted(missing)}"
+    # the objects show the same report: the notebook's HTML and the summary text
+    assert html_words(result._repr_html_()) >= set(BEFORE[name]["html"]) - {"Made", "by", "cfa-tool", "VERSION"}  # (the page's last line)
+    assert words(result.summary()) == views["text"]
+
+
+def test_the_report_holds_the_scree_plot_the_draft_model_and_the_sections(shown):
+    name, result, report = shown
+    assert [f.title for f in report.figures] == ["Scree plot: eigenvalues beside those of random data"]
+    assert "<polyline" in report.figures[0].svg
+    assert [(x.title, x.text) for x in report.listings] == [("Draft model", result.draft_text)]
+    sections = [t.section for t in report.tables]
+    assert sections[:3] == ["How many factors"] * 3
+    assert sections[3] == f"The {result.factors}-factor solution"
+    assert ("Confirmation half: the draft model fitted" in sections) == (result.split is not None)
+    assert report.warnings == result.notes
+    if name == "four_factors":  # the Heywood case comes first in every view
+        assert report.notice is not None and report.notice.lines[0].startswith("Heywood case")
+        assert report_markdown(report).startswith("## Check before interpreting this solution")
+        page = report_html(report)
+        assert page.index('id="problems"') < page.index("<h1>")
