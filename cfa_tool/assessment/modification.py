@@ -28,6 +28,7 @@ from cfa_tool.numerics.linalg import inverse_quadratic_forms, scaled_inverse
 from cfa_tool.estimation.objective import Objective
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable
+from cfa_tool.model.rank_two import EntryBasis, entry_basis
 
 
 @dataclass(frozen=True)
@@ -164,37 +165,58 @@ def constrained_entries(table: ParameterTable, kinds: tuple[str, ...], group: in
     ]
 
 
-def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]]) -> ModificationIndices:
-    """MI and EPC for each group's candidate entries (``candidates[g]``)."""
+@dataclass(frozen=True)
+class CandidateLayout:
+    """One group's candidate entries as (matrix code, row, column) arrays, cut into chunks of at most CHUNK
+    candidates with the rank-two description of each chunk (:func:`~cfa_tool.model.rank_two.entry_basis`): fixed by
+    the model's pattern, so a model's own candidates are laid out once and kept for its refits."""
+
+    codes: np.ndarray
+    rows: np.ndarray
+    cols: np.ndarray
+    chunks: tuple[slice, ...]
+    bases: tuple[EntryBasis, ...]
+
+
+def candidate_layout(cands: list[Candidate], p: int, m: int) -> CandidateLayout:
+    codes, rows, cols = candidate_arrays(cands)
+    chunks = tuple(_chunks(len(cands)))
+    return CandidateLayout(codes, rows, cols, chunks,
+                           tuple(entry_basis(codes[sl], rows[sl], cols[sl], p, m, with_pairs=False) for sl in chunks))
+
+
+def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
+                layouts: list[CandidateLayout] | None = None) -> ModificationIndices:
+    """MI and EPC for each group's candidate entries (``candidates[g]``; ``layouts[g]`` their
+    :func:`candidate_layout`, made here when not given)."""
     table = model.table
+    if layouts is None:
+        layouts = [candidate_layout(c, model.p, model.m) for c in candidates]
     if hasattr(likelihood, "candidate_scores"):  # complete data: every block from rank-two derivatives, in chunks
         H_tt = likelihood.evaluate(theta).information
-
-        def blocks(g: int, weight: float, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray):
-            for sl in _chunks(len(codes)):  # made when used: one chunk's block of the information held at a time
-                d, H_ct, h_cc = likelihood.candidate_scores(theta, g, codes[sl], rows[sl], cols[sl])
-                yield weight * d, weight * H_ct, weight * h_cc
-
-        parts = [(g, weight, model.matrices(theta, g), blocks) for g, weight in enumerate(likelihood.weights)
-                 if candidates[g]]
+        # made when used: one chunk's block of the information held at a time
+        parts = [(g, weight, model.matrices(theta, g), likelihood.candidate_scores(theta, g, layouts[g].bases))
+                 for g, weight in enumerate(likelihood.weights) if candidates[g]]
     else:
-        H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates)
+        H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates, layouts)
     forms = inverse_quadratic_forms(H_tt)  # one factorisation for every group and chunk
     n = likelihood.n_total
     columns = []
-    for g, weight, mats, blocks_of in parts:
-        codes, rows, cols = candidate_arrays(candidates[g])
+    for g, weight, mats, blocks in parts:
         d, h_cc, h_ct = [], [], []
-        for d_part, H_ct, h_cc_part in blocks_of(g, weight, codes, rows, cols):
+        for d_part, H_ct, h_cc_part in blocks:
+            if weight != 1.0:  # one group: nothing to weigh
+                d_part, H_ct, h_cc_part = weight * d_part, weight * H_ct, weight * h_cc_part
             d.append(d_part)
             h_cc.append(h_cc_part)
-            h_ct.append(forms(H_ct.T))
+            h_ct.append(forms(H_ct.T, overwrite=True))  # H_ct is this loop's own
         d, h_cc = np.concatenate(d), np.concatenate(h_cc)
         h = h_cc - np.concatenate(h_ct)
         ok = h > 1e-10 * np.maximum(h_cc, 1e-300)
         mi = np.where(ok, 0.5 * n * d**2 / np.where(ok, h, 1.0), np.nan)
         epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
-        std_epc, _ = standardize_entries(mats, codes, rows, cols, epc)
+        lay = layouts[g]
+        std_epc, _ = standardize_entries(mats, lay.codes, lay.rows, lay.cols, epc)
         columns.append((mi, epc, std_epc, ok))
     labels = tuple(table.groups) if table.multigroup else (None,) * table.n_groups
     if not columns:
@@ -213,7 +235,8 @@ def candidate_arrays(cands: list[Candidate]) -> tuple[np.ndarray, np.ndarray, np
     return (np.array([MATRIX_CODES[c[2]] for c in cands]), np.array([c[3] for c in cands]), np.array([c[4] for c in cands]))
 
 
-def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]]):
+def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
+                    layouts: list[CandidateLayout]):
     """The same blocks from full derivative matrices, in chunks (incomplete data; every group's information is
     summed before the blocks are used, so they are held)."""
     q = len(theta)
@@ -224,16 +247,15 @@ def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candi
         group = likelihood.group_parts(theta, g)
         t_sigma, t_mu = model.jacobian(theta, g)
         H_tt += weight * group.information(t_sigma, t_mu)
-        cands = candidates[g]
-        if not cands:
+        if not candidates[g]:
             continue
-        codes, rows, cols = candidate_arrays(cands)
+        lay = layouts[g]
         blocks = []
-        for sl in _chunks(len(cands)):  # bounded memory for models with thousands of candidates
-            c_sigma, c_mu = entry_derivatives(mats, codes[sl], rows[sl], cols[sl])
-            blocks.append((weight * group.gradient(c_sigma, c_mu), weight * group.information(c_sigma, c_mu, t_sigma, t_mu),
-                           weight * group.information_diagonal(c_sigma, c_mu)))
-        parts.append((g, weight, mats, lambda *_, blocks=blocks: blocks))
+        for sl in lay.chunks:  # bounded memory for models with thousands of candidates
+            c_sigma, c_mu = entry_derivatives(mats, lay.codes[sl], lay.rows[sl], lay.cols[sl])
+            blocks.append((group.gradient(c_sigma, c_mu), group.information(c_sigma, c_mu, t_sigma, t_mu),
+                           group.information_diagonal(c_sigma, c_mu)))
+        parts.append((g, weight, mats, blocks))
     return H_tt, parts
 
 
@@ -242,8 +264,9 @@ def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: 
     table = model.table
     key = ("modification candidates", exogenous)  # fixed by the model: built at its first fit, kept for its refits
     if key not in model.derived:
-        model.derived[key] = [candidate_entries(table, exogenous, g) for g in range(table.n_groups)]
-    return score_tests(model, theta, likelihood, model.derived[key])
+        candidates = [candidate_entries(table, exogenous, g) for g in range(table.n_groups)]
+        model.derived[key] = candidates, [candidate_layout(c, model.p, model.m) for c in candidates]
+    return score_tests(model, theta, likelihood, *model.derived[key])
 
 
 def equality_score_tests(model: StructuredModel, theta: np.ndarray, likelihood: Objective,

@@ -7,10 +7,11 @@ w_i rows) the sums run over the rows each counted w_i times, N = sum w_i: the te
 repeated by its weight (means and S weighted, b1 = (1/N^2) sum_ij w_i w_j (.)^3, b2 = (1/N) sum_i w_i (.)^2).
 
 The double sum never holds an N x N or N x p^2 array at once.  With whitened rows y_i it is either
-sum_abc T_abc^2 where T_abc = sum_i y_ia y_ib y_ic (N p^3 / 2 operations, as T is symmetric: its rows T_ab. for
-b >= a, one item a at a time; for few items and many rows: N > p^2) or
-the cubed Gram matrix Y Y' taken in blocks of rows small enough to stay in the processor's cache, each pair of
-blocks once (N^2 p / 2 operations, for many items), whichever was timed faster for the shape.
+sum_abc T_abc^2 where T_abc = sum_i y_ia y_ib y_ic (N p^3 / 3 operations, as T is symmetric: one item a at a
+time, the block U = T_a.. over b, c >= a, whose triples have smallest index a; by inclusion and exclusion the
+ordered triples with smallest index a add 3 |U|^2 - 3 |U_a.|^2 + U_aa^2; for few items and many rows:
+p^2 < 1.5 N) or the cubed Gram matrix Y Y' taken in blocks of rows small enough to stay in the processor's
+cache, each pair of blocks once (N^2 p / 2 operations, for many items), whichever was timed faster for the shape.
 """
 
 from __future__ import annotations
@@ -43,11 +44,13 @@ GRAM_ROWS = 128  # rows per block of the Gram matrix: its blocks stay in the pro
 # and N = 1,000 than blocks of a thousand rows; process time, one BLAS thread)
 
 
-def whitened_rows(rows: np.ndarray) -> tuple[np.ndarray, float]:
+def whitened_rows(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] | None = None) -> tuple[np.ndarray, float]:
     """(Y, log|S|): the centred rows times L^-T with S = L L' their covariance matrix (divisor N), so that
-    y_i' y_j = z_i' S^-1 z_j (the Mahalanobis products of Mardia's tests and the case diagnostics)."""
-    Z = rows - rows.mean(axis=0)
-    L = np.linalg.cholesky(Z.T @ Z / len(rows))
+    y_i' y_j = z_i' S^-1 z_j (the Mahalanobis products of Mardia's tests and the case diagnostics).
+    ``moments``: the rows' (mean, covariance with divisor N) when the caller has them (the fit's sample moments)."""
+    mean, covariance = moments if moments is not None else (rows.mean(axis=0), None)
+    Z = rows - mean
+    L = np.linalg.cholesky(Z.T @ Z / len(rows) if covariance is None else covariance)
     return solve_triangular(L, Z.T, lower=True, check_finite=False).T, 2.0 * float(np.log(L.diagonal()).sum())
 
 
@@ -90,7 +93,7 @@ def _sum_of_cubed_products(Y: np.ndarray, w: np.ndarray | None = None) -> float:
     the Gram matrix, whichever is cheaper."""
     n, p = Y.shape
     total = 0.0
-    if n < p * p:  # Gram blocks (pairs of row blocks, off-diagonal blocks counted twice): timed faster here
+    if p * p >= 1.5 * n:  # Gram blocks (pairs of row blocks, off-diagonal blocks counted twice): timed faster here
         size = max(1, min(n, GRAM_ROWS, BLOCK // n))
         for start in range(0, n, size):
             stop = min(n, start + size)
@@ -102,8 +105,7 @@ def _sum_of_cubed_products(Y: np.ndarray, w: np.ndarray | None = None) -> float:
         return total
     columns = np.ascontiguousarray(Y.T)
     weighted = columns if w is None else columns * w
-    for a in range(p):  # T_ab. for b >= a (T is symmetric: the rows b > a stand for T_ba. as well)
-        T = (columns[a:] * weighted[a]) @ Y
-        squares = np.einsum("ij,ij->i", T, T)
-        total += 2.0 * float(squares.sum()) - float(squares[0])
+    for a in range(p):  # U = T_a.. over b, c >= a: the triples whose smallest index is a
+        U = (columns[a:] * weighted[a]) @ Y[:, a:]
+        total += 3.0 * float(np.vdot(U, U)) - 3.0 * float(U[0] @ U[0]) + float(U[0, 0]) ** 2
     return total

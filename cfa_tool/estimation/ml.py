@@ -17,7 +17,7 @@ import numpy as np
 from cfa_tool.estimation.objective import Evaluation
 from cfa_tool.numerics.linalg import log_det_pd, spd_inverse
 from cfa_tool.model.implied import StructuredModel
-from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, entry_basis, gradient_and_information,
+from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, gradient_and_information, model_columns,
                                      second_derivative_contraction)
 
 
@@ -146,18 +146,23 @@ class NormalLikelihood:
         """Value, gradient and expected information at theta (None if some Sigma is not positive definite)."""
         return self._evaluate(theta, True)
 
-    def candidate_scores(self, theta: np.ndarray, g: int, codes: np.ndarray, rows: np.ndarray, cols: np.ndarray):
-        """(d, H_ct, h) of group g's candidate entries for score tests: gradient, cross-information with
-        theta and own information, all of this group's discrepancy (unweighted)."""
+    def candidate_scores(self, theta: np.ndarray, g: int, chunks):
+        """(d, H_ct, h) of group g's candidate entries for score tests, one triple per chunk of candidates
+        (``chunks``: their :class:`~cfa_tool.model.rank_two.EntryBasis`, made when used): gradient,
+        cross-information with theta and own information, all of this group's discrepancy (unweighted).
+        What every chunk reads (K, Q and the model's columns of K) is made once."""
         out = self._rank_two(theta, g, with_information=False)
         if out is None:
-            return None
+            return
         mats, parts, _, _, K, Q = out
         V, a = basis_vectors(mats, self.means)
         Vm = V.T @ parts.mean_gradient if parts.mean_gradient is not None else None
-        cand = entry_basis(codes, rows, cols, self.model.p, self.model.m, with_pairs=False)
-        d, H_ce, h = candidate_blocks(cand, self._basis[g], K, Q, Vm, a)
-        return d, (H_ce if self.model.identity_J[g] else H_ce @ self._J[g]), h
+        model = self._basis[g]
+        columns = model_columns(model, K)
+        J = None if self.model.identity_J[g] else self._J[g]
+        for cand in chunks:
+            d, H_ce, h = candidate_blocks(cand, model, K, Q, Vm, a, columns)
+            yield d, (H_ce if J is None else H_ce @ J), h
 
     def _evaluate(self, theta: np.ndarray, with_information: bool) -> Evaluation | None:
         if len(self.weights) == 1 and self.model.identity_J[0]:  # one group, each parameter one entry

@@ -134,18 +134,24 @@ def cross_term(basis: EntryBasis, K: np.ndarray, Q: np.ndarray) -> np.ndarray:
     return basis.cc * (q[basis.vu] * Kuv + q[basis.vv] * k[basis.uu] + q[basis.uu] * k[basis.vv] + q[basis.uv] * Kuv.T)
 
 
+def model_columns(model: EntryBasis, K: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(c_e K[:, u_e], K[:, v_e]): the columns of K that every candidate's cross-information reads, gathered once
+    per group (c_e is 1 or 1/2, so folding it in here changes no rounding)."""
+    return K[:, model.u] * model.c, K[:, model.v]
+
+
 def candidate_blocks(cand: EntryBasis, model: EntryBasis, K: np.ndarray, Q: np.ndarray, Vm: np.ndarray | None,
-                     a: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+                     a: np.ndarray, columns: tuple[np.ndarray, np.ndarray]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """For candidate entries (not parameters of the model): their gradient d, their cross-information
     with the model's entries H_ce and their own information h (the diagonal), as in the formulas above.
-    ``Vm`` is V' m (the mean part of the gradient), None without a mean structure."""
+    ``Vm`` is V' m (the mean part of the gradient), None without a mean structure; ``columns`` is
+    :func:`model_columns` of the model's entries."""
     uc, vc, cc = cand.u, cand.v, cand.c
-    ue, ve, ce = model.u, model.v, model.c
+    Ku, Kv = columns  # K is symmetric, so K[u_c, u_e] = Ku[u_c]: whole rows gathered
     d = 2.0 * cc * Q[uc, vc]
-    Ku, Kv = K[:, ue], K[:, ve]  # K is symmetric, so K[u_c, u_e] = Ku[u_c]: whole rows gathered
     H = Ku[uc] * Kv[vc]
     H += Kv[uc] * Ku[vc]
-    H *= (2.0 * cc)[:, None] * ce
+    H *= (2.0 * cc)[:, None]  # 2 c_c c_e in all (powers of two: exact in any order)
     h = 2.0 * cc**2 * (K[uc, uc] * K[vc, vc] + K[uc, vc] ** 2)
     if Vm is not None:
         sc, se = mean_coefficients(cand, a), mean_coefficients(model, a)

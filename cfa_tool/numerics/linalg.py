@@ -70,17 +70,20 @@ def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) 
 
 def inverse_quadratic_forms(H: np.ndarray):
     """A function of B giving b_k' H^-1 b_k for every column b_k of B, from one Cholesky factorisation
-    of the Jacobi-scaled H (H = L L': the squared column norms of L^-1 B, one triangular solve);
-    the general solve when H is not positive definite."""
+    of the Jacobi-scaled H: with D H D = L L', H = F F' for F = D^-1 L, and the forms are the squared column
+    norms of F^-1 B (one triangular solve, B not scaled first); the general solve when H is not positive definite.
+    ``forms(B, overwrite=True)`` may overwrite B (a Fortran-ordered B, such as the transpose of a C-ordered
+    array, is then solved in place)."""
     if H.size == 0:
-        return lambda B: np.zeros(B.shape[1])
+        return lambda B, overwrite=False: np.zeros(B.shape[1])
     d = _scales(H)
     factor, info = lapack.dpotrf(H * (d[:, None] * d), lower=1, clean=1)
     if info != 0:
-        return lambda B: np.einsum("ij,ij->j", B, scaled_solve(H, B))
+        return lambda B, overwrite=False: np.einsum("ij,ij->j", B, scaled_solve(H, B))
+    factor /= d[:, None]
 
-    def forms(B: np.ndarray) -> np.ndarray:
-        X, _ = lapack.dtrtrs(factor, d[:, None] * B, lower=1)
+    def forms(B: np.ndarray, overwrite: bool = False) -> np.ndarray:
+        X, _ = lapack.dtrtrs(factor, B, lower=1, overwrite_b=int(overwrite))
         return np.einsum("ij,ij->j", X, X)
 
     return forms

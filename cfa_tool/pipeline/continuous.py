@@ -280,7 +280,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     group_results = []
     for g, ((label, m), gm) in enumerate(zip(groups, likelihood.groups)):
         sigma = mats[g].implied_covariance()
-        whitened = whitened_rows(gm.rows) if options.diagnostics and gm.rows is not None else None  # shared below
+        # shared below; unweighted rows are those the sample moments were computed from
+        whitened = (whitened_rows(gm.rows, (gm.mean, gm.covariance) if gm.design is None else None)
+                    if options.diagnostics and gm.rows is not None else None)
         share = likelihood.n_total * likelihood.weights[g] * likelihood.group_discrepancy(theta, g) if est.converged else None
         group_results.append(
             GroupResult(

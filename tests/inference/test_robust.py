@@ -75,9 +75,9 @@ def test_mardia_against_direct_double_sum():
     assert result.skewness_df == 10 and result.kurtosis_expected == 15
 
 
-@pytest.mark.parametrize("n, p", [(30, 6), (200, 3), (300, 20)])
+@pytest.mark.parametrize("n, p", [(20, 6), (30, 6), (200, 3), (300, 20)])
 def test_mardia_in_blocks_against_direct_double_sum(monkeypatch, n, p):
-    # 30 rows of 6 items take the blocked Gram-matrix path, 200 rows of 3 the blocked third-moment path;
+    # 20 rows of 6 items take the blocked Gram-matrix path (p^2 >= 1.5 N), the others the third-moment path;
     # a small block size makes several blocks of each (the definition of b1 and b2: Mardia 1970)
     from cfa_tool.assessment import normality
 
@@ -128,3 +128,17 @@ def test_robust_test_needs_raw_rows():
     moments = SampleMoments(("a", "b", "c"), cov, np.zeros(3), 200, 200, 0, "<matrix>")
     with pytest.raises(OptionError, match="raw data"):
         fit_moments(parse_model("factor f: a, b, c\n"), moments, FitOptions(test="satorra-bentler"))
+
+
+def test_whitened_rows_from_the_fits_moments_equal_those_from_the_rows(hs_data):
+    # the fit passes its sample moments (divisor N) instead of recomputing them: the same whitened rows, so that
+    # Mardia's tests and the case diagnostics do not depend on where the moments came from
+    from cfa_tool.assessment.normality import whitened_rows
+
+    rows = hs_data[[f"x{i}" for i in range(1, 10)]].to_numpy(dtype=float)
+    z = rows - rows.mean(axis=0)
+    Y, log_det = whitened_rows(rows)
+    Y_shared, log_det_shared = whitened_rows(rows, (rows.mean(axis=0), z.T @ z / len(rows)))
+    assert np.allclose(Y_shared, Y, rtol=1e-12, atol=1e-12) and log_det_shared == pytest.approx(log_det, rel=1e-12)
+    # y_i' y_j = z_i' S^-1 z_j (the definition the tests use; S with divisor N)
+    assert np.allclose(Y @ Y.T, z @ np.linalg.inv(z.T @ z / len(rows)) @ z.T, atol=1e-9)
