@@ -555,6 +555,16 @@ def invariance_paragraph(result, levels) -> str:
                           f"d = {num(x.standardized, 2)})" for x in result.latent_differences)
         parts.append(f"Latent mean differences from the {'partially invariant ' if any(s.partial for s in steps) else ''}"
                      f"scalar model, against {result.groups[0]} (d: over the pooled latent standard deviation): {diffs}.")
+        totals = list(dict.fromkeys(x.factor for x in result.latent_differences if x.total))
+        if totals:
+            parts.append(f"For {_list(totals)}, explained by a higher-order factor, these are the total means and "
+                         f"variances the model implies (Bollen, 1989), not those of the disturbances.")
+    if result.means_not_estimated:
+        many = len(result.means_not_estimated) > 1
+        parts.append(f"The mean{'s' if many else ''} of the higher-order factor{'s' if many else ''} "
+                     f"{_list(list(result.means_not_estimated))} {'were' if many else 'was'} fixed at zero in every "
+                     f"group (the means of the factors {'they explain' if many else 'it explains'} were free), so no "
+                     f"difference was estimated for {'them' if many else 'it'}.")
     elif result.latent_note:
         parts.append(_capital(result.latent_note.rstrip(".")) + ".")
     parts.append("The guide values are conventions rather than strict criteria." if first.method.ordinal else

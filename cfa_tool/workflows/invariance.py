@@ -158,6 +158,9 @@ class LatentDifference:
     variance: float
     variance_se: float
     reference_variance: float
+    # the factor is explained by a higher-order factor: mean and variance are the totals the model implies, not
+    # those of its disturbance
+    total: bool = False
 
     @property
     def variance_ratio(self) -> float:
@@ -167,7 +170,8 @@ class LatentDifference:
         return clean({"factor": self.factor, "group": self.group, "mean_difference": self.mean, "se": self.se,
                       "ci95": list(self.ci95), "p_value": self.p_value, "standardized_mean_difference": self.standardized,
                       "variance": self.variance, "variance_se": self.variance_se,
-                      "reference_variance": self.reference_variance, "variance_ratio": self.variance_ratio})
+                      "reference_variance": self.reference_variance, "variance_ratio": self.variance_ratio,
+                      "model_implied_totals": self.total})
 
 
 @dataclass(frozen=True, eq=False)
@@ -181,6 +185,7 @@ class InvarianceResult(Presentable):
     rule: DecisionRule = DecisionRule.DIFFERENCE_TEST
     latent_differences: tuple[LatentDifference, ...] = ()
     latent_note: str = ""  # which model the latent differences come from, or why there are none
+    means_not_estimated: tuple[str, ...] = ()  # higher-order factors whose means stay fixed at 0 in every group
 
     def to_dict(self) -> dict:
         return {
@@ -194,6 +199,7 @@ class InvarianceResult(Presentable):
             "freed": [f.to_dict() for f in self.freed],
             "latent_differences": [d.to_dict() for d in self.latent_differences],
             "latent_differences_note": self.latent_note,
+            "means_not_estimated": list(self.means_not_estimated),
         }
 
 
@@ -350,9 +356,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         warnings.insert(0, f"the {step.level} model's solution is not admissible ("
                            + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
                            + "): its fit and its difference test cannot show that invariance holds")
-    differences, latent_note = latent_differences(steps)
+    differences, latent_note, not_estimated = latent_differences(steps)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + tuple(warnings), rule,
-                            differences, latent_note)
+                            differences, latent_note, not_estimated)
 
 
 def _step_holds(rule: DecisionRule, test: DifferenceTest, alpha: float, result: FitResult, general: FitResult,
@@ -367,18 +373,20 @@ def _step_holds(rule: DecisionRule, test: DifferenceTest, alpha: float, result: 
     return by_change if rule is DecisionRule.FIT_CHANGE else (by_change and by_test)
 
 
-def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str]:
+def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[str, ...]]:
     """Factor means and variances of each group against the reference group, from the scalar model (partial
     when the search freed some of its equalities), with a note saying which model they come from or why
-    there are none: latent means are comparable only when loadings and intercepts (thresholds) are equal."""
+    there are none: latent means are comparable only when loadings and intercepts (thresholds) are equal.
+    A factor explained by a higher-order factor is compared by the total mean and variance the model implies;
+    a higher-order factor whose mean stays fixed at 0 in every group is returned by name, with no difference."""
     scalar = next((s for s in steps if s.level == "scalar"), None)
     if scalar is None:
-        return (), "No latent mean differences: the ladder did not reach the scalar step."
+        return (), "No latent mean differences: the ladder did not reach the scalar step.", ()
     if any(not s.holds for s in steps if s.level in ("thresholds", "metric", "scalar")):
         return (), ("No latent mean differences: the scalar step (or a step before it) did not hold, so the factor "
-                    "means of the groups are not on a common scale.")
+                    "means of the groups are not on a common scale."), ()
     if not scalar.result.admissible:
-        return (), "No latent mean differences: the scalar model's solution is not admissible."
+        return (), "No latent mean differences: the scalar model's solution is not admissible.", ()
     result = scalar.result
     labels = [g.label for g in result.groups]
     size = {g.label: g.data.n_obs for g in result.groups}
@@ -397,29 +405,106 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str]:
         loose |= {f.variables[1] for f in freed if f.kind == "loading" and f.variables[0] == factor}
         if len(items - loose) < 2:
             too_few.append(factor)
+    higher = _higher_order_parents(result)
+    # a higher-order factor's mean stays fixed at 0 while the means of the factors it explains are free
+    fixed_means = [f for f in result.latent if f not in too_few and f in _higher_factors(higher)
+                   and not any(rows.get(("mean", (f,), g)) is not None and rows[("mean", (f,), g)].free
+                               for g in labels[1:])]
     out = []
     for factor in result.latent:
-        if factor in too_few:
+        if factor in too_few or factor in fixed_means:
             continue
-        ref_var = rows.get(("factor_variance", (factor,), reference))
         for label in labels[1:]:
-            mean = rows.get(("mean", (factor,), label))
-            var = rows.get(("factor_variance", (factor,), label))
-            if mean is None or var is None or ref_var is None:
+            row = rows.get(("mean", (factor,), label))
+            moments = [_total_moments(result, higher, rows, factor, g) for g in (reference, label)]
+            if row is None or None in moments:
                 continue
-            pooled = (size[reference] * ref_var.estimate + size[label] * var.estimate) / (size[reference] + size[label])
-            d = mean.estimate / np.sqrt(pooled) if pooled > 0 else float("nan")
-            out.append(LatentDifference(factor, label, mean.estimate, mean.se, mean.ci95, mean.p_value, float(d),
-                                        var.estimate, var.se, ref_var.estimate))
+            (ref_mean, ref_var), (mean, var) = moments
+            through = higher.get(factor, {})
+            if through and any(rows[("mean", (h,), g)].free for h in _ancestors(higher, factor)
+                               for g in (reference, label)):
+                se, ci, p = float("nan"), (float("nan"), float("nan")), float("nan")  # not a single parameter
+            else:
+                se, ci, p = row.se, row.ci95, row.p_value
+            pooled = (size[reference] * ref_var + size[label] * var) / (size[reference] + size[label])
+            d = (mean - ref_mean) / np.sqrt(pooled) if pooled > 0 else float("nan")
+            own = rows.get(("factor_variance", (factor,), label))
+            out.append(LatentDifference(factor, label, mean - ref_mean, se, ci, p, float(d), var,
+                                        own.se if own is not None and not through else float("nan"), ref_var,
+                                        bool(through)))
     withheld = (f" None for {', '.join(too_few)}: fewer than two of its items keep equal loadings and intercepts "
                 f"across groups, so the equality that makes its means comparable is not tested (Byrne, Shavelson & "
                 f"Muthen 1989)." if too_few else "")
-    which = "the partially invariant scalar model" if any(s.partial for s in steps if s.level != "strict") else \
-        "the scalar model"
+    lower = [f for f in result.latent if f in higher and f not in too_few]
+    if lower:
+        withheld += (f" {_capital_first(', '.join(lower))} {'are' if len(lower) > 1 else 'is'} explained by a "
+                     f"higher-order factor: {'their' if len(lower) > 1 else 'its'} mean and variance are the totals "
+                     f"the model implies (Bollen 1989: means (I - B)^-1 alpha, covariances (I - B)^-1 Psi "
+                     f"(I - B)^-T), not those of {'their' if len(lower) > 1 else 'its'} disturbance"
+                     f"{'s' if len(lower) > 1 else ''}, and d is over the pooled total standard deviation.")
+    if fixed_means:
+        withheld += (f" No mean difference for {', '.join(fixed_means)}: {'their' if len(fixed_means) > 1 else 'its'} "
+                     f"mean is fixed at 0 in every group (at this step the means of the factors it explains are free "
+                     f"in each group and take up any difference), so it is not estimated.")
+    which = "the partially invariant scalar model" if any(s.partial for s in steps if s.level != "strict") \
+        else "the scalar model"
     return tuple(out), (f"From {which}: each group's factor means against the reference group {reference} (whose means "
                         f"are fixed at 0); standardized by the pooled latent standard deviation of the two groups."
                         + ("" if steps[0].holds else " The configural model misfits, so read them with caution.")
-                        + withheld)
+                        + withheld), tuple(fixed_means)
+
+
+def _capital_first(text: str) -> str:
+    return text[:1].upper() + text[1:]
+
+
+def _higher_order_parents(result: FitResult) -> dict[str, dict[str, dict[str, float]]]:
+    """For each factor explained by higher-order factors: {parent: {group: loading}} (latent-on-latent loadings)."""
+    out: dict[str, dict[str, dict[str, float]]] = {}
+    latent = set(result.latent)
+    for r in result.estimates:
+        if r.kind == "loading" and r.variables[1] in latent:
+            out.setdefault(r.variables[1], {}).setdefault(r.variables[0], {})[r.group] = r.estimate
+    return out
+
+
+def _higher_factors(higher: dict) -> set[str]:
+    """The higher-order factors (those that explain another factor)."""
+    return {parent for parents in higher.values() for parent in parents}
+
+
+def _ancestors(higher: dict, factor: str) -> list[str]:
+    out, todo = [], list(higher.get(factor, {}))
+    while todo:
+        h = todo.pop()
+        if h not in out:
+            out.append(h)
+            todo.extend(higher.get(h, {}))
+    return out
+
+
+def _total_moments(result: FitResult, higher: dict, rows: dict, factor: str, group: str) -> tuple[float, float] | None:
+    """A factor's total mean and variance in ``group`` as the model implies them (Bollen 1989, ch. 8: mean
+    (I - B)^-1 alpha, covariance (I - B)^-1 Psi (I - B)^-T): its own mean plus its higher-order factors' means
+    times its loadings on them; its variance from the group's total factor covariance matrix."""
+    def mean_of(f: str) -> float | None:
+        own = rows.get(("mean", (f,), group))
+        if own is None:
+            return None
+        total = own.estimate
+        for parent, loadings in higher.get(f, {}).items():
+            above = mean_of(parent)
+            if above is None or group not in loadings:
+                return None
+            total += loadings[group] * above
+        return total
+
+    g = next((x for x in result.groups if x.label == group), None)
+    mean = mean_of(factor)
+    if mean is None or g is None or g.latent_covariance is None:
+        return None
+    i = result.latent.index(factor)
+    return mean, float(g.latent_covariance[i, i])
 
 
 def _decimal(value: float) -> str:
