@@ -497,6 +497,15 @@ def _step_figures(step) -> str:
     return text
 
 
+def _held(step) -> str:
+    """Whether an invariance step held, in words: an inadmissible solution says so."""
+    if step.holds:
+        return "held"
+    if step.result.converged and not step.result.admissible:
+        return "did not hold: its solution was not admissible"
+    return "did not hold"
+
+
 def invariance_paragraph(result, levels) -> str:
     """The methods-and-results paragraph of an invariance ladder: the groups and rows, exactly the models of the
     ladder (what each level holds equal, ``levels`` being the ladder's (level, classes held equal, ...) rows), the
@@ -530,21 +539,27 @@ def invariance_paragraph(result, levels) -> str:
                  "RMSEA \u2264 .06, SRMR \u2264 .08; Hu & Bentler, 1999); each later model by "
                  f"{rule}" + (f", the difference test being {_list([m.phrase for m in methods])}" if methods else "")
                  + ".")
-    verdict = "held" if steps[0].holds else "did not hold"
-    parts.append(f"The configural model {verdict} ({_fit_figures(first)}).")
+    parts.append(f"The configural model {_held(steps[0])} ({_fit_figures(first)}).")
     for step in steps[1:]:
         name = _capital(_LEVEL_WORDS.get(step.level, step.level))
-        if step.partial:
+        declared = _list([_parameter((r.kind, r.names, r.group), d) for r in step.declared]) if d is not None else \
+            _list([str(r) for r in step.declared])
+        if step.declared and not step.partial:
+            parts.append(f"{name} invariance, partial with {declared} not held equal across groups as the model file "
+                         f"declares, {_held(step)} ({_step_figures(step)}).")
+        elif step.partial:
             full = step.full_test
             with_all = (f"{CHI}({full.df_difference}) = {full.chi_square_difference:.2f}, {_p(full.p_value)}"
                         if full is not None and not full.not_computed else "no difference statistic")
             freed = _list([f"the {f.kind.replace('_', ' ')} of {', '.join(f.variables)}" for f in step.freed])
-            state = "held" if step.holds else "still did not hold"
-            parts.append(f"{name} invariance did not hold with every equality ({with_all}); after freeing {freed}, "
+            state = "held" if step.holds else "still did not hold" if step.result.admissible else _held(step)
+            others = f"with {declared} not held equal as the model file declares and every other equality" \
+                if step.declared else "with every equality"
+            parts.append(f"{name} invariance did not hold {others} ({with_all}); after freeing {freed}, "
                          f"chosen one at a time by score tests (a data-driven search that capitalises on chance and "
                          f"needs confirmation in new data), it {state} as partial invariance ({_step_figures(step)}).")
         else:
-            parts.append(f"{name} invariance {'held' if step.holds else 'did not hold'} ({_step_figures(step)}).")
+            parts.append(f"{name} invariance {_held(step)} ({_step_figures(step)}).")
     conditional = [s.level for s in steps if s.conditional]
     if conditional:
         parts.append(f"The {_list(conditional)} step{'s were' if len(conditional) > 1 else ' was'} tested after a step "
@@ -553,7 +568,8 @@ def invariance_paragraph(result, levels) -> str:
     if result.latent_differences:
         diffs = "; ".join(f"{x.factor} in {x.group}, {num(x.mean, 2)} (SE = {num(x.se, 2)}, {_p(x.p_value)}, "
                           f"d = {num(x.standardized, 2)})" for x in result.latent_differences)
-        parts.append(f"Latent mean differences from the {'partially invariant ' if any(s.partial for s in steps) else ''}"
+        parts.append(f"Latent mean differences from the "
+                     f"{'partially invariant ' if any(s.partly_equal for s in steps if s.level != 'strict') else ''}"
                      f"scalar model, against {result.groups[0]} (d: over the pooled latent standard deviation): {diffs}.")
         totals = list(dict.fromkeys(x.factor for x in result.latent_differences if x.total))
         if totals:

@@ -22,7 +22,7 @@ from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ord
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design)
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
-from cfa_tool.errors import EstimationError, OptionError
+from cfa_tool.errors import EstimationError, ModelError, OptionError
 from cfa_tool.pipeline.continuous import assess, estimate
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
@@ -104,10 +104,19 @@ class InvarianceStep:
     freed: tuple = ()  # FreedParameter freed at this step (a partially invariant step)
     stopped: str = ""  # why the partial search stopped here
     delta_srmr: float | None = None
+    # 'noninvariant' statements of the model file that exempt a parameter held equal at this step: the step
+    # is partial invariance by the researcher's declaration
+    declared: tuple[ParameterRef, ...] = ()
 
     @property
     def partial(self) -> bool:
+        """Whether the partial-invariance search freed parameters at this step."""
         return bool(self.freed)
+
+    @property
+    def partly_equal(self) -> bool:
+        """Whether some parameters of the step's classes are not held equal (searched or declared)."""
+        return bool(self.freed or self.declared)
 
     def to_dict(self) -> dict:
         vs = _test_dict(self.versus_previous, self.delta_srmr)
@@ -128,8 +137,9 @@ class InvarianceStep:
             "judged_by": "its own fit (CFI, RMSEA and SRMR guide values)" if self.versus_previous is None
             else "the difference test against the step before",
             "conditional_on_a_rejected_step": self.conditional,
-            "partial": self.partial,
+            "partial": self.partly_equal,
             "freed": [f.to_dict() for f in self.freed],
+            "declared_not_equal": [{"kind": r.kind, "variables": list(r.names), "group": r.group} for r in self.declared],
             "with_every_equality": full,
             "search_stopped": self.stopped or None,
             "constraint_tests": [clean(c.to_dict()) for c in self.culprits[:10]],
@@ -237,8 +247,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     # values that look like no answers, among the rows with a group label: first among the cautions
     data_cautions = tuple(p.line() for p in odd_value_problems(analysed_odd_values(loaded, spec, group)))
     if spec.invariant:
-        raise OptionError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "
-                          "'equal across groups' statements from the model file")
+        where = spec.equalities_location
+        raise ModelError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "
+                         "'equal across groups' statements from the model file", where, spec.source_line(where))
     ordinal_items = ordinal_items_of(spec, ordinal)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None:
@@ -297,7 +308,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                         data_cautions + (stopped,) + tuple(notes), rule)
             with threads:
                 test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
-            holds = configural_fits(result) if test is None else _step_holds(rule, test, alpha, result, previous[1], level)
+            # an inadmissible solution (negative variances, ...) cannot show that invariance holds, whatever its fit;
+            # the search goes on (a misfitting equality can itself push a variance below zero)
+            holds = result.admissible and (configural_fits(result) if test is None
+                                           else _step_holds(rule, test, alpha, result, previous[1], level))
             if full is None:
                 full = (result, test, holds)
             with threads:
@@ -326,19 +340,21 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         # the description of exactly the model fitted at this step, for the methods paragraph
         result = _described(result, level_spec, labels, ordinal_items)
         steps.append(InvarianceStep(level, result, test, holds, culprits, conditional, full[0], full[1], full[2],
-                                    tuple(freed_here), stopped if partial != "none" and kinds else "", srmr_change))
+                                    tuple(freed_here), stopped if partial != "none" and kinds else "", srmr_change,
+                                    tuple(r for r in spec.noninvariant if _exempts_a_class_of(r, classes))))
         previous = (est, result)
         start = est.theta
     warnings = list(notes)
-    if not steps[0].holds:
+    if not steps[0].holds and steps[0].result.admissible:
         fit = _fit_values(steps[0].result)
         warnings.insert(0, "the configural model does not fit by the guide values (" + ", ".join(
             f"{k.upper()} {_decimal(v)}" for k, v in fit.items()) + "): every later step compares models that already "
             "misfit, so its test says little about invariance; first find out why the model misfits (fit it in each "
             "group alone and read the modification indices and residuals), then test invariance")
     elif any(s.conditional for s in steps):
-        first = next(s.level for s in steps if not s.holds)
-        warnings.insert(0, f"the {first} step did not hold, so the steps after it compare models that already fail "
+        first = next(s for s in steps if not s.holds)
+        why = "was not admissible" if not first.result.admissible else "did not hold"
+        warnings.insert(0, f"the {first.level} step {why}, so the steps after it compare models that already fail "
                            f"it; they are marked as conditional on a rejected step")
     if freed:
         warnings.append(SEARCH_WARNING)
@@ -395,6 +411,7 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[
     # a factor's means are comparable when at least two of its items keep equal loadings and intercepts
     # (Byrne, Shavelson & Muthen 1989); with fewer, its scalar equality is not tested at all
     freed = [f for s in steps if s.level in ("thresholds", "metric", "scalar") for f in s.freed]
+    declared = scalar.declared  # the model file's exemptions in force at the scalar step
     items_of: dict[str, set[str]] = {}
     for r in result.estimates:
         if r.kind == "loading" and r.group == reference and r.variables[1] in result.observed:
@@ -403,6 +420,8 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[
     for factor, items in items_of.items():
         loose = {f.variables[-1] for f in freed if f.kind in ("intercept", "threshold") and f.variables[-1] in items}
         loose |= {f.variables[1] for f in freed if f.kind == "loading" and f.variables[0] == factor}
+        loose |= {r.names[-1] for r in declared if r.kind in ("intercept", "threshold") and r.names[-1] in items}
+        loose |= {r.names[1] for r in declared if r.kind == "loading" and r.names[0] == factor}
         if len(items - loose) < 2:
             too_few.append(factor)
     higher = _higher_order_parents(result)
@@ -446,11 +465,13 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[
         withheld += (f" No mean difference for {', '.join(fixed_means)}: {'their' if len(fixed_means) > 1 else 'its'} "
                      f"mean is fixed at 0 in every group (at this step the means of the factors it explains are free "
                      f"in each group and take up any difference), so it is not estimated.")
-    which = "the partially invariant scalar model" if any(s.partial for s in steps if s.level != "strict") \
+    which = "the partially invariant scalar model" if any(s.partly_equal for s in steps if s.level != "strict") \
         else "the scalar model"
     return tuple(out), (f"From {which}: each group's factor means against the reference group {reference} (whose means "
                         f"are fixed at 0); standardized by the pooled latent standard deviation of the two groups."
-                        + ("" if steps[0].holds else " The configural model misfits, so read them with caution.")
+                        + ("" if steps[0].holds else " The configural model misfits, so read them with caution."
+                           if steps[0].result.admissible else " The configural model's solution is not admissible, so "
+                           "read them with caution.")
                         + withheld), tuple(fixed_means)
 
 
