@@ -374,6 +374,10 @@ def _model_sentences(name: str, result) -> str:
     departures = _departures(d)
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))
+    if result.multigroup:  # what distinguishes grouped models: their equalities across groups
+        parts.append(f"{name} held {_list(equality_words(d.invariant))} equal across groups" + (
+            f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + "."
+            if d.invariant else f"{name} held no parameter equal across groups (the same pattern in every group).")
     return " ".join(parts)
 
 
@@ -417,8 +421,17 @@ def comparison_paragraph(comparison) -> str:
     names, results = comparison.names, comparison.results
     label = {name: f"Model {k}" for k, name in enumerate(names, start=1)}
     first = results[0]
-    parts = [f"{_capital(_count(len(names), 'model'))} of the same {_count(len(first.observed), 'indicator')} were "
-             f"compared on the same rows ({_comparison_rows(comparison)}), each estimated by {_estimator_phrase(first)}."]
+    counts = sorted({len(r.observed) for r in results})
+    if len({frozenset(r.observed) for r in results}) == 1:
+        of = f"of the same {_count(counts[0], 'indicator')}"
+    elif len(counts) > 1:
+        of = f"of {WORDS.get(counts[0], str(counts[0]))} to {_count(counts[-1], 'indicator')}"
+    else:
+        of = f"of {_count(counts[0], 'indicator')} each, not all the same items,"
+    groups = (f" in {_count(len(first.groups), 'group')} defined by {first.group_column}"
+              f" ({_list([str(g.label) for g in first.groups])})" if first.multigroup else "")
+    parts = [f"{_capital(_count(len(names), 'model'))} {of} were compared on the same rows "
+             f"({_comparison_rows(comparison)}){groups}, each estimated by {_estimator_phrase(first)}."]
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
     design = getattr(first, "design", None)
     if design is not None:

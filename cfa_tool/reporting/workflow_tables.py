@@ -11,6 +11,7 @@ from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import _parameter, comparison_paragraph, invariance_paragraph
 from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit, word_list
+from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
@@ -181,7 +182,7 @@ def comparison_report(comparison) -> Report:
     else:
         rows_line = (f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
                      f"answer on any model's variables left out).")
-    lines = (rows_line, *_design_lines(comparison.results[0]))
+    lines = (rows_line, *_comparison_group_lines(comparison), *_design_lines(comparison.results[0]))
     # one column per model, one row per index: readable in 80 columns for the usual two to four models
     # every model of a comparison has the same robust test (or none): the estimator and rows are shared
     test = next((r.robust.test for r in comparison.results if r.robust is not None), None)
@@ -294,6 +295,22 @@ def _verdict(holds: bool | None, result) -> str:
     if holds:
         return "yes"
     return "inadmissible" if result is not None and result.converged and not result.admissible else "no"
+
+
+def _comparison_group_lines(comparison) -> tuple[str, ...]:
+    """The groups of a grouped comparison and what each model holds equal across them (what distinguishes them)."""
+    first = comparison.results[0]
+    if not first.multigroup:
+        return ()
+    held = []
+    for k, (name, result) in enumerate(zip(comparison.names, comparison.results), start=1):
+        d = result.description
+        words = word_list(equality_words(d.invariant)) if d is not None and d.invariant else "nothing"
+        held.append(f"model {k} ({name}): {words}" + (f" (with {len(d.noninvariant)} exception"
+                                          f"{'s' if len(d.noninvariant) > 1 else ''})" if d is not None and
+                                          d.invariant and d.noninvariant else ""))
+    return (f"Groups defined by {first.group_column}: {', '.join(f'{g.label} ({g.data.n_obs} rows)' for g in first.groups)}.",
+            f"Held equal across groups: {'; '.join(held)}.")
 
 
 def _step_label(step) -> str:
