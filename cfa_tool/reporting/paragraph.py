@@ -109,14 +109,30 @@ def _parameter(ref: tuple, d) -> str:
 
 
 def _scale_sentence(d) -> str:
+    """How each factor got its scale; with factors scaled differently in some group, those factors group by group."""
+    if not d.group_scales:
+        return _scales_in_words(d.scales, d.scales)
+    shared = [s for s in d.scales if all(s in scales for _, scales in d.group_scales)]
+    sentences = [_scales_in_words(shared, d.scales)] if shared else []
+    for label, scales in d.group_scales:
+        words = _scales_in_words([s for s in scales if s not in shared], scales)
+        sentences.append(f"In group {label}, {words[:1].lower()}{words[1:]}")
+    different = [s.factor for s in d.scales if s not in shared]
+    sentences.append(f"Scaled differently in different groups, {_list(different)} "
+                     f"{'are' if len(different) > 1 else 'is'} not on the same metric in every group.")
+    return " ".join(sentences)
+
+
+def _scales_in_words(chosen, every) -> str:
+    """The scaling of the ``chosen`` factors in a sentence (``every``: all the factors of the same group)."""
     by_method: dict[tuple, list] = {}
-    for s in d.scales:
+    for s in chosen:
         by_method.setdefault((s.method, s.below_higher_order and s.method == "variance"), []).append(s)
     parts = []
     for (method, disturbance), scales in by_method.items():
         names = [s.factor for s in scales]
-        whose = "each factor" if len(scales) == len(d.scales) and len(scales) > 1 else (
-            "the factor" if len(d.scales) == 1 else _list(names))
+        whose = "each factor" if len(scales) == len(every) and len(scales) > 1 else (
+            "the factor" if len(every) == 1 else _list(names))
         subject = f"the scales of {whose} were" if len(scales) > 1 and whose != "each factor" else f"the scale of {whose} was"
         if method == "marker":
             markers = _list([f"{s.marker} for {s.factor}" for s in scales]) if len(scales) > 1 else scales[0].marker
