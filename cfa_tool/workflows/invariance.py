@@ -522,8 +522,11 @@ def _total_moments(result: FitResult, higher: dict, rows: dict, factor: str, gro
 
     g = next((x for x in result.groups if x.label == group), None)
     mean = mean_of(factor)
-    if mean is None or g is None or g.latent_covariance is None:
+    if mean is None or g is None:
         return None
+    if g.latent_covariance is None:  # without the total matrix: a first-order factor's own variance is its total
+        own = rows.get(("factor_variance", (factor,), group))
+        return (mean, own.estimate) if own is not None and factor not in higher else None
     i = result.latent.index(factor)
     return mean, float(g.latent_covariance[i, i])
 
