@@ -59,9 +59,12 @@ class Comparison(Presentable):
             "rows_dropped": self.rows_dropped,
             "incomplete_rows": self.missing.value,
             "notes": list(self.notes),
+            "group_column": self.results[0].group_column if self.results[0].multigroup else None,
+            "groups": [g.label for g in self.results[0].groups] if self.results[0].multigroup else [],
             "models": [
                 {"name": name, "source": r.model_source, "converged": r.converged, "admissible": r.admissible,
                  "problems": [p.to_dict() for p in r.problems],
+                 "description": r.description.to_dict() if r.description is not None else None,
                  "fit": clean(r.fit.to_dict()) if r.fit is not None and r.converged else None,
                  "robust": clean(r.robust.to_dict()) if r.robust is not None and r.converged else None}
                 for name, r in zip(self.names, self.results)

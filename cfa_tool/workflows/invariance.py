@@ -440,7 +440,7 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[
                 continue
             (ref_mean, ref_var), (mean, var) = moments
             through = higher.get(factor, {})
-            if through and any(rows[("mean", (h,), g)].free for h in _ancestors(higher, factor)
+            if through and any(getattr(rows.get(("mean", (h,), g)), "free", False) for h in _ancestors(higher, factor)
                                for g in (reference, label)):
                 se, ci, p = float("nan"), (float("nan"), float("nan")), float("nan")  # not a single parameter
             else:

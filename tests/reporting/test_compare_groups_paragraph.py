@@ -26,6 +26,10 @@ def test_a_grouped_comparison_names_the_groups_and_what_each_model_holds_equal(g
     assert "Groups defined by grp: g1 (300 rows), g2 (300 rows)." in report.lines
     assert any(line.startswith("Held equal across groups: model 1") and line.endswith(": loadings and intercepts.")
                for line in report.lines)
+    out = grouped.to_dict()
+    assert out["group_column"] == "grp" and out["groups"] == ["g1", "g2"]
+    assert [m["description"]["held_equal_across_groups"] for m in out["models"]] == [
+        [], ["loadings"], ["loadings", "intercepts"]]
 
 
 def test_models_on_different_items_are_not_said_to_share_them():
