@@ -558,6 +558,11 @@ def invariance_paragraph(result, levels) -> str:
         parts.append(f"The configural model had {_structure(first, d).rstrip(',')}, with the same pattern in every "
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
                      f"{result.groups[0]} were fixed at zero.")
+        if d.scales:
+            parts.append(_scale_sentence(d))
+        departures = _departures(d)
+        if departures:
+            parts.append(departures.replace("The model also included", "The configural model also included", 1))
     design = getattr(first, "design", None)
     if design is not None:
         parts.append(design.sentence(first.method.full_information, first.method.ordinal))

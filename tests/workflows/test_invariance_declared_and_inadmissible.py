@@ -47,6 +47,9 @@ def test_every_view_calls_the_declared_step_partial_and_names_the_parameter(decl
                for n in report.notes)
     assert "the intercept of y5 not held equal across groups as the model file declares" in report.paragraph
     assert "from the partially invariant scalar model" in report.paragraph
+    # the configural model as fitted: its scales too
+    assert "The scale of each factor was set by fixing the loading of one indicator to 1 (y1 for f and y4 for h)." \
+        in report.paragraph
 
 
 @pytest.fixture(scope="module")

@@ -46,6 +46,7 @@ def test_the_higher_order_mean_is_named_as_not_estimated_not_shown_as_a_zero_dif
     report = invariance_report(ladder)
     assert "[, ]" not in report.paragraph and "SE = ," not in report.paragraph
     assert "fixed at zero in every group" in report.paragraph
+    assert "x1 for f1, x4 for f2, x7 for f3, and f1 for g" in report.paragraph  # the configural model's scales
 
 
 def test_first_order_rows_are_the_totals_written_out_by_hand(ladder):
