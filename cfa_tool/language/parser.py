@@ -249,6 +249,7 @@ class _Builder:
         reversed_items: list[ReverseKeying] = []
         method_factors: list[Name] = []
         level: str | None = None
+        equalities_at: Location | None = None  # the first 'invariance' or 'equal across groups' statement
         blocks: list[ExploratoryBlock] = []
         near_zero: list[tuple[Name, tuple[Name, ...], Tree]] = []
         for stmt in tree.children:
@@ -300,6 +301,7 @@ class _Builder:
                                  "'invariance thresholds' (ordinal items); other parameters with 'equal across groups: "
                                  "factor variances, factor covariances, factor means, error variances'", stmt)
             elif kind == "invariance_stmt":
+                equalities_at = equalities_at or self.loc(stmt)
                 word = self.name(stmt.children[0])
                 if word.text not in INVARIANCE_LEVELS:
                     guess = close_names(word.text, INVARIANCE_LEVELS)
@@ -311,6 +313,7 @@ class _Builder:
                 level = word.text
                 invariant.extend(c for c in INVARIANCE_LEVELS[level] if c not in invariant)
             elif kind == "equal_groups_stmt":
+                equalities_at = equalities_at or self.loc(stmt)
                 for words in stmt.children[0].children:
                     tokens = [t for t in words.children if isinstance(t, Token)]
                     text = " ".join(str(t) for t in tokens)
@@ -374,6 +377,7 @@ class _Builder:
             reversed=tuple(reversed_items),
             method=tuple(method_factors),
             invariance_level=level,
+            equalities_location=equalities_at,
             exploratory=tuple(blocks),
             lines=self.lines,
         ), ordinal)

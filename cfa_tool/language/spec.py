@@ -207,6 +207,8 @@ class Spec:
     reversed: tuple[ReverseKeying, ...] = ()
     method: tuple[Name, ...] = ()  # factors of method, not of a trait (wording, acquiescence): no reliability
     invariance_level: str | None = None  # the level an 'invariance' statement names
+    # where the first 'invariance' or 'equal across groups' statement is (for messages about it)
+    equalities_location: Location | None = field(default=None, compare=False)
     exploratory: tuple[ExploratoryBlock, ...] = ()  # their factors are in ``factors`` too, with their identification
     lines: tuple[str, ...] = field(default=(), repr=False, compare=False)
 

@@ -48,6 +48,9 @@ class ModelDescription:
     # by the block alone, not in the fields above
     exploratory: tuple[tuple[tuple[str, ...], tuple[str, ...], str], ...] = ()
     confirmatory_indicators: tuple[str, ...] = ()  # the items of the confirmatory (not exploratory) factors
+    # each group's scales (group label, scales), when some factor is scaled differently in some group ('in group'
+    # statements); empty when every group is scaled as ``scales`` says
+    group_scales: tuple[tuple[str, tuple[FactorScale, ...]], ...] = ()
 
     def to_dict(self) -> dict:
         return {
@@ -61,6 +64,8 @@ class ModelDescription:
             "uncorrelated_factors": [list(p) for p in self.uncorrelated],
             "correlated_factors": self.correlated_factors,
             "scales": [{"factor": s.factor, "method": s.method, "marker": s.marker} for s in self.scales],
+            "scales_by_group": [{"group": label, "scales": [{"factor": s.factor, "method": s.method, "marker": s.marker}
+                                                             for s in scales]} for label, scales in self.group_scales],
             "equal": [[_ref_dict(r) for r in e] for e in self.equal],
             "fixed": [{**_ref_dict(r), "value": value} for r, value in self.fixed],
             "bounds": [{**_ref_dict(r), "lower": lo, "upper": hi} for r, lo, hi in self.bounds],
@@ -106,6 +111,7 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
     exo_first = [f for f in first_order if f in exo]
     held = {frozenset(p) for p in uncorrelated}
     correlated = any(frozenset((a, b)) not in held for i, a in enumerate(exo_first) for b in exo_first[i + 1:])
+    scales = [tuple(s for s in _scales(spec, table, g) if outside(s.factor)) for g in range(table.n_groups)]
     return ModelDescription(
         first_order=first_order,
         higher_order=higher,
@@ -116,7 +122,8 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
         factor_covariances_added=added,
         uncorrelated=uncorrelated,
         correlated_factors=correlated,
-        scales=tuple(s for s in _scales(spec, table) if outside(s.factor)),
+        scales=scales[0],
+        group_scales=tuple(zip(table.groups, scales)) if len(set(scales)) > 1 else (),
         equal=tuple(tuple(_ref(r) for r in group) for group in spec.equal),
         fixed=tuple((_ref(ref), setting.value) for setting in spec.fixed for ref in setting.refs if outside(*ref.names)),
         bounds=tuple((_ref(ref), b.lower, b.upper) for b in spec.bounds for ref in b.refs),
@@ -128,13 +135,13 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
     )
 
 
-def _scales(spec: Spec, table: ParameterTable) -> tuple[FactorScale, ...]:
-    """How each factor got its scale, read from the first group's parameters."""
+def _scales(spec: Spec, table: ParameterTable, group: int = 0) -> tuple[FactorScale, ...]:
+    """How each factor got its scale, read from one group's parameters."""
     out = []
     below = {i.text for f in spec.factors for i in f.indicators if i.text in set(spec.factor_names)}
     for name in spec.factor_names:
         endogenous = name in below
-        own = [p for p in table.parameters if p.group == 0 and (
+        own = [p for p in table.parameters if p.group == group and (
             (p.kind == "loading" and p.variables[0] == name) or (p.kind == "factor_variance" and p.variables == (name,)))]
         scale = [p for p in own if p.origin == "scale"]
         if any(p.origin == "user" for p in own) and not scale:

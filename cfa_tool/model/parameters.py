@@ -517,8 +517,9 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
             raise _fail(spec, "'noninvariant' lets a parameter differ across groups, and this fit has no groups: give "
                               "the group column (--group-column COLUMN) or remove the statement", spec.noninvariant[0])
         if spec.invariant:
-            raise ModelError(f"the model holds {', '.join(equality_words(spec.invariant))} equal across groups, and this "
-                             f"fit has no groups: give the group column (--group-column COLUMN) or remove the statement")
+            raise _fail(spec, f"the model holds {', '.join(equality_words(spec.invariant))} equal across groups, and "
+                              f"this fit has no groups: give the group column (--group-column COLUMN) or remove the "
+                              f"statement", spec.equalities_location)
         return
     for ref in refs:
         if ref.group not in group_labels:
@@ -534,7 +535,8 @@ def _check_threshold_use(spec: Spec, ordinal: dict[str, int]) -> None:
                               f"thresholds (declare it with 'ordinal {ref.names[0]}' or --ordinal, and give --group-column)", ref)
     if "thresholds" in spec.invariant and not ordinal:
         raise ModelError("holding thresholds equal across groups applies to ordinal items in a multi-group fit, and this fit has none "
-                         "(declare them with 'ordinal ...' or --ordinal, and give --group-column)", None, None)
+                         "(declare them with 'ordinal ...' or --ordinal, and give --group-column)", spec.equalities_location,
+                         spec.source_line(spec.equalities_location))
 
 
 def _merge_terms(terms: list[tuple[int, float]]) -> tuple[tuple[int, float], ...]:

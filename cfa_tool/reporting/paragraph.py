@@ -109,14 +109,30 @@ def _parameter(ref: tuple, d) -> str:
 
 
 def _scale_sentence(d) -> str:
+    """How each factor got its scale; with factors scaled differently in some group, those factors group by group."""
+    if not d.group_scales:
+        return _scales_in_words(d.scales, d.scales)
+    shared = [s for s in d.scales if all(s in scales for _, scales in d.group_scales)]
+    sentences = [_scales_in_words(shared, d.scales)] if shared else []
+    for label, scales in d.group_scales:
+        words = _scales_in_words([s for s in scales if s not in shared], scales)
+        sentences.append(f"In group {label}, {words[:1].lower()}{words[1:]}")
+    different = [s.factor for s in d.scales if s not in shared]
+    sentences.append(f"Scaled differently in different groups, {_list(different)} "
+                     f"{'are' if len(different) > 1 else 'is'} not on the same metric in every group.")
+    return " ".join(sentences)
+
+
+def _scales_in_words(chosen, every) -> str:
+    """The scaling of the ``chosen`` factors in a sentence (``every``: all the factors of the same group)."""
     by_method: dict[tuple, list] = {}
-    for s in d.scales:
+    for s in chosen:
         by_method.setdefault((s.method, s.below_higher_order and s.method == "variance"), []).append(s)
     parts = []
     for (method, disturbance), scales in by_method.items():
         names = [s.factor for s in scales]
-        whose = "each factor" if len(scales) == len(d.scales) and len(scales) > 1 else (
-            "the factor" if len(d.scales) == 1 else _list(names))
+        whose = "each factor" if len(scales) == len(every) and len(scales) > 1 else (
+            "the factor" if len(every) == 1 else _list(names))
         subject = f"the scales of {whose} were" if len(scales) > 1 and whose != "each factor" else f"the scale of {whose} was"
         if method == "marker":
             markers = _list([f"{s.marker} for {s.factor}" for s in scales]) if len(scales) > 1 else scales[0].marker
@@ -374,6 +390,10 @@ def _model_sentences(name: str, result) -> str:
     departures = _departures(d)
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))
+    if result.multigroup:  # what distinguishes grouped models: their equalities across groups
+        parts.append(f"{name} held {_list(equality_words(d.invariant))} equal across groups" + (
+            f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + "."
+            if d.invariant else f"{name} held no parameter equal across groups (the same pattern in every group).")
     return " ".join(parts)
 
 
@@ -417,8 +437,17 @@ def comparison_paragraph(comparison) -> str:
     names, results = comparison.names, comparison.results
     label = {name: f"Model {k}" for k, name in enumerate(names, start=1)}
     first = results[0]
-    parts = [f"{_capital(_count(len(names), 'model'))} of the same {_count(len(first.observed), 'indicator')} were "
-             f"compared on the same rows ({_comparison_rows(comparison)}), each estimated by {_estimator_phrase(first)}."]
+    counts = sorted({len(r.observed) for r in results})
+    if len({frozenset(r.observed) for r in results}) == 1:
+        of = f"of the same {_count(counts[0], 'indicator')}"
+    elif len(counts) > 1:
+        of = f"of {WORDS.get(counts[0], str(counts[0]))} to {_count(counts[-1], 'indicator')}"
+    else:
+        of = f"of {_count(counts[0], 'indicator')} each, not all the same items,"
+    groups = (f" in {_count(len(first.groups), 'group')} defined by {first.group_column}"
+              f" ({_list([str(g.label) for g in first.groups])})" if first.multigroup else "")
+    parts = [f"{_capital(_count(len(names), 'model'))} {of} were compared on the same rows "
+             f"({_comparison_rows(comparison)}){groups}, each estimated by {_estimator_phrase(first)}."]
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
     design = getattr(first, "design", None)
     if design is not None:
@@ -497,6 +526,15 @@ def _step_figures(step) -> str:
     return text
 
 
+def _held(step) -> str:
+    """Whether an invariance step held, in words: an inadmissible solution says so."""
+    if step.holds:
+        return "held"
+    if step.result.converged and not step.result.admissible:
+        return "did not hold: its solution was not admissible"
+    return "did not hold"
+
+
 def invariance_paragraph(result, levels) -> str:
     """The methods-and-results paragraph of an invariance ladder: the groups and rows, exactly the models of the
     ladder (what each level holds equal, ``levels`` being the ladder's (level, classes held equal, ...) rows), the
@@ -520,6 +558,11 @@ def invariance_paragraph(result, levels) -> str:
         parts.append(f"The configural model had {_structure(first, d).rstrip(',')}, with the same pattern in every "
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
                      f"{result.groups[0]} were fixed at zero.")
+        if d.scales:
+            parts.append(_scale_sentence(d))
+        departures = _departures(d)
+        if departures:
+            parts.append(departures.replace("The model also included", "The configural model also included", 1))
     design = getattr(first, "design", None)
     if design is not None:
         parts.append(design.sentence(first.method.full_information, first.method.ordinal))
@@ -530,21 +573,27 @@ def invariance_paragraph(result, levels) -> str:
                  "RMSEA \u2264 .06, SRMR \u2264 .08; Hu & Bentler, 1999); each later model by "
                  f"{rule}" + (f", the difference test being {_list([m.phrase for m in methods])}" if methods else "")
                  + ".")
-    verdict = "held" if steps[0].holds else "did not hold"
-    parts.append(f"The configural model {verdict} ({_fit_figures(first)}).")
+    parts.append(f"The configural model {_held(steps[0])} ({_fit_figures(first)}).")
     for step in steps[1:]:
         name = _capital(_LEVEL_WORDS.get(step.level, step.level))
-        if step.partial:
+        declared = _list([_parameter((r.kind, r.names, r.group), d) for r in step.declared]) if d is not None else \
+            _list([str(r) for r in step.declared])
+        if step.declared and not step.partial:
+            parts.append(f"{name} invariance, partial with {declared} not held equal across groups as the model file "
+                         f"declares, {_held(step)} ({_step_figures(step)}).")
+        elif step.partial:
             full = step.full_test
             with_all = (f"{CHI}({full.df_difference}) = {full.chi_square_difference:.2f}, {_p(full.p_value)}"
                         if full is not None and not full.not_computed else "no difference statistic")
             freed = _list([f"the {f.kind.replace('_', ' ')} of {', '.join(f.variables)}" for f in step.freed])
-            state = "held" if step.holds else "still did not hold"
-            parts.append(f"{name} invariance did not hold with every equality ({with_all}); after freeing {freed}, "
+            state = "held" if step.holds else "still did not hold" if step.result.admissible else _held(step)
+            others = f"with {declared} not held equal as the model file declares and every other equality" \
+                if step.declared else "with every equality"
+            parts.append(f"{name} invariance did not hold {others} ({with_all}); after freeing {freed}, "
                          f"chosen one at a time by score tests (a data-driven search that capitalises on chance and "
                          f"needs confirmation in new data), it {state} as partial invariance ({_step_figures(step)}).")
         else:
-            parts.append(f"{name} invariance {'held' if step.holds else 'did not hold'} ({_step_figures(step)}).")
+            parts.append(f"{name} invariance {_held(step)} ({_step_figures(step)}).")
     conditional = [s.level for s in steps if s.conditional]
     if conditional:
         parts.append(f"The {_list(conditional)} step{'s were' if len(conditional) > 1 else ' was'} tested after a step "
@@ -553,8 +602,19 @@ def invariance_paragraph(result, levels) -> str:
     if result.latent_differences:
         diffs = "; ".join(f"{x.factor} in {x.group}, {num(x.mean, 2)} (SE = {num(x.se, 2)}, {_p(x.p_value)}, "
                           f"d = {num(x.standardized, 2)})" for x in result.latent_differences)
-        parts.append(f"Latent mean differences from the {'partially invariant ' if any(s.partial for s in steps) else ''}"
+        parts.append(f"Latent mean differences from the "
+                     f"{'partially invariant ' if any(s.partly_equal for s in steps if s.level != 'strict') else ''}"
                      f"scalar model, against {result.groups[0]} (d: over the pooled latent standard deviation): {diffs}.")
+        totals = list(dict.fromkeys(x.factor for x in result.latent_differences if x.total))
+        if totals:
+            parts.append(f"For {_list(totals)}, explained by a higher-order factor, these are the total means and "
+                         f"variances the model implies (Bollen, 1989), not those of the disturbances.")
+    if result.means_not_estimated:
+        many = len(result.means_not_estimated) > 1
+        parts.append(f"The mean{'s' if many else ''} of the higher-order factor{'s' if many else ''} "
+                     f"{_list(list(result.means_not_estimated))} {'were' if many else 'was'} fixed at zero in every "
+                     f"group (the means of the factors {'they explain' if many else 'it explains'} were free), so no "
+                     f"difference was estimated for {'them' if many else 'it'}.")
     elif result.latent_note:
         parts.append(_capital(result.latent_note.rstrip(".")) + ".")
     parts.append("The guide values are conventions rather than strict criteria." if first.method.ordinal else

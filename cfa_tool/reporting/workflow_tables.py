@@ -9,8 +9,9 @@ from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.method import ADJUSTED_TEST, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.paragraph import comparison_paragraph, invariance_paragraph
+from cfa_tool.reporting.paragraph import _parameter, comparison_paragraph, invariance_paragraph
 from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit, word_list
+from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
@@ -181,7 +182,7 @@ def comparison_report(comparison) -> Report:
     else:
         rows_line = (f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
                      f"answer on any model's variables left out).")
-    lines = (rows_line, *_design_lines(comparison.results[0]))
+    lines = (rows_line, *_comparison_group_lines(comparison), *_design_lines(comparison.results[0]))
     # one column per model, one row per index: readable in 80 columns for the usual two to four models
     # every model of a comparison has the same robust test (or none): the estimator and rows are shared
     test = next((r.robust.test for r in comparison.results if r.robust is not None), None)
@@ -285,6 +286,54 @@ def _other_differences(steps) -> str:
     return out
 
 
+INADMISSIBLE_VERDICT_NOTE = ("'inadmissible': the step's solution is not admissible (see the problems above), so it "
+                             "does not hold: it cannot show that invariance holds, whatever its fit.")
+
+
+def _verdict(holds: bool | None, result) -> str:
+    """A step's 'Holds' cell: an inadmissible solution says why it does not hold."""
+    if holds:
+        return "yes"
+    return "inadmissible" if result is not None and result.converged and not result.admissible else "no"
+
+
+def _comparison_group_lines(comparison) -> tuple[str, ...]:
+    """The groups of a grouped comparison and what each model holds equal across them (what distinguishes them)."""
+    first = comparison.results[0]
+    if not first.multigroup:
+        return ()
+    held = []
+    for k, (name, result) in enumerate(zip(comparison.names, comparison.results), start=1):
+        d = result.description
+        words = word_list(equality_words(d.invariant)) if d is not None and d.invariant else "nothing"
+        held.append(f"model {k} ({name}): {words}" + (f" (with {len(d.noninvariant)} exception"
+                                          f"{'s' if len(d.noninvariant) > 1 else ''})" if d is not None and
+                                          d.invariant and d.noninvariant else ""))
+    return (f"Groups defined by {first.group_column}: {', '.join(f'{g.label} ({g.data.n_obs} rows)' for g in first.groups)}.",
+            f"Held equal across groups: {'; '.join(held)}.")
+
+
+def _step_label(step) -> str:
+    """A step's row label: partial when the search freed parameters or the model file declared some not equal."""
+    if step.partial:
+        return f"{step.level} ({'partial, ' if step.declared else ''}{len(step.freed)} freed)"
+    return f"{step.level} (partial)" if step.declared else step.level
+
+
+def _declared_note(steps) -> str:
+    """Which parameters the model file's 'noninvariant' statements leave free across groups, from which step on."""
+    first: dict = {}
+    for step in steps:
+        for ref in step.declared:
+            first.setdefault((ref.kind, ref.names, ref.group), step.level)
+    if not first:
+        return ""
+    d = steps[0].result.description
+    items = [f"{_parameter(ref, d)} (from the {level} step)" for ref, level in first.items()]
+    return (f"Partial invariance declared in the model file: not held equal across groups, {word_list(items)}; the "
+            f"steps marked partial hold every other equality of their level.")
+
+
 def invariance_report(result) -> Report:
     # two narrow tables (each level's own fit; each step against the one before) read in 80 columns;
     # a partially invariant step shows first with every equality, then with the freed ones
@@ -292,7 +341,7 @@ def invariance_report(result) -> Report:
     steps, step_values = [], []
     adjusted = any(step.result.robust is not None for step in result.steps)
     for step in result.steps:
-        label = f"{step.level} ({len(step.freed)} freed)" if step.partial else step.level
+        label = _step_label(step)
         if step.partial and step.full_result is not None:
             cells, values = _level_fit_cells(step.full_result, adjusted)
             levels.append([f"{step.level} (all equal)", *cells, _admissible_cell(step.full_result)])
@@ -303,14 +352,14 @@ def invariance_report(result) -> Report:
                 before = result.steps[result.steps.index(step) - 1].result
                 srmr = step.full_result.fit.srmr - before.fit.srmr
                 cells, values = _step_cells(step.full_test, srmr)
-                steps.append([f"{step.level} (all equal)", *cells, "yes" if step.full_holds else "no"])
-                step_values.append([f"{step.level} (all equal)", *values, "yes" if step.full_holds else "no"])
+                steps.append([f"{step.level} (all equal)", *cells, _verdict(step.full_holds, step.full_result)])
+                step_values.append([f"{step.level} (all equal)", *values, _verdict(step.full_holds, step.full_result)])
         cells, values = _level_fit_cells(step.result, adjusted)
         levels.append([label, *cells, _admissible_cell(step.result)])
         level_values.append([label, *values, _admissible_cell(step.result)])
         if step.result.converged and not step.result.admissible:
             flagged.append(len(levels) - 1)
-        verdict = ("yes" if step.holds else "no") + (" *" if step.conditional else "")
+        verdict = _verdict(step.holds, step.result) + (" *" if step.conditional else "")
         if step.versus_previous is not None:
             cells, values = _step_cells(step.versus_previous, step.delta_srmr)
             steps.append([label, *cells, verdict])
@@ -334,8 +383,10 @@ def invariance_report(result) -> Report:
                values=(["Level", "Chi-square", "df", "p", "CFI", "RMSEA", "SRMR", "Admissible"], level_values)),
         _table("steps", "Each step against the one before",
                [("Level", "l"), ("Difference (df)", "r"), ("p", "r"), *delta_columns, ("Holds", "l")], steps,
-               "* tested after a step that did not hold: the comparison is between models already rejected."
-               if any(step.conditional for step in result.steps) else None,
+               " ".join(note for note, shown in (
+                   (INADMISSIBLE_VERDICT_NOTE, any(not s.result.admissible for s in result.steps)),
+                   ("* tested after a step that did not hold: the comparison is between models already rejected.",
+                    any(step.conditional for step in result.steps))) if shown) or None,
                values=(["Level", "Chi-square difference", "df difference", "p", *delta_values, "Holds"], step_values)),
     ]
     tests = sorted({step.result.robust.test.label for step in result.steps if step.result.robust is not None})
@@ -357,6 +408,9 @@ def invariance_report(result) -> Report:
                 "score test." if many else None)
         tables.append(_table("freed", "Parameters freed by the partial-invariance search", columns, rows, note,
                              values=([c for c, _ in columns], values)))
+    declared = _declared_note(result.steps)
+    if declared:
+        notes.append(declared)
     for step in result.steps:
         if step.stopped and (step.partial or step.stopped != "the step holds"):
             freed_words = f"freed {len(step.freed)} parameter{'s' if len(step.freed) != 1 else ''} and " \

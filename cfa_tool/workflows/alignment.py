@@ -705,8 +705,10 @@ def configural_spec(spec: Spec) -> Spec:
     """The model as alignment starts from it: every factor scaled by its variance (1 in every group, with means
     0), and no equality across groups."""
     if spec.invariant or spec.invariance_level is not None:
-        raise OptionError("alignment starts from the configural model, with nothing held equal across groups; remove "
-                          "'invariance' and 'equal across groups' statements from the model file")
+        where = spec.equalities_location
+        raise ModelError("alignment starts from the configural model, with nothing held equal across groups; remove "
+                         "'invariance' and 'equal across groups' statements from the model file", where,
+                         spec.source_line(where))
     for factor in spec.factors:
         inner = [i for i in factor.indicators if i.text in spec.factor_names]
         if inner:

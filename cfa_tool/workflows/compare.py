@@ -59,9 +59,12 @@ class Comparison(Presentable):
             "rows_dropped": self.rows_dropped,
             "incomplete_rows": self.missing.value,
             "notes": list(self.notes),
+            "group_column": self.results[0].group_column if self.results[0].multigroup else None,
+            "groups": [g.label for g in self.results[0].groups] if self.results[0].multigroup else [],
             "models": [
                 {"name": name, "source": r.model_source, "converged": r.converged, "admissible": r.admissible,
                  "problems": [p.to_dict() for p in r.problems],
+                 "description": r.description.to_dict() if r.description is not None else None,
                  "fit": clean(r.fit.to_dict()) if r.fit is not None and r.converged else None,
                  "robust": clean(r.robust.to_dict()) if r.robust is not None and r.converged else None}
                 for name, r in zip(self.names, self.results)
@@ -99,12 +102,13 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     fit_options = replace(make_options(options), diagnostics=False)
     design = design_columns(weights, cluster, strata, weight_kind)
     specs = [load_spec(m) for m in models]
+    names = _unique_names(specs)
+    _same_item_types(specs, names, [ordinal_items_of(spec, ordinal) for spec in specs])
     ordinal_items = set().union(*(ordinal_items_of(spec, ordinal) for spec in specs))
     specs = [with_ordinal_levels(spec, ordinal_items) for spec in specs]
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None and not ordinal_items:  # ordinal items always get sandwich errors and adjusted tests
         fit_options = design_test(fit_options, design)
-    names = _unique_names(specs)
     if summary_source(data):
         refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group)
         if ordinal_items:
@@ -273,6 +277,29 @@ def _different_variables(first: Spec, second: Spec, first_name: str, second_name
 
 def _df(result: FitResult) -> float:
     return result.fit.df if result.fit is not None else float("-inf")
+
+
+def _same_item_types(specs: list[Spec], names: list[str], ordinal: list[set[str]]) -> None:
+    """Refuse models that treat a shared item differently (ordinal in one, continuous in another): they then
+    describe different data, and fitting the continuous one as ordinal would change it silently."""
+    for i, first in enumerate(specs):
+        for j in range(i + 1, len(specs)):
+            shared = set(first.observed_names) & set(specs[j].observed_names)
+            one, other = ordinal[i] & shared, ordinal[j] & shared
+            if one != other:
+                ordinal_in, continuous_in = (i, j) if one - other else (j, i)
+                items = sorted((one ^ other), key=specs[ordinal_in].observed_names.index)
+                shown = ", ".join(items[:4]) + (f" and {len(items) - 4} more" if len(items) > 4 else "")
+                raise OptionError(f"the models {_named(specs[ordinal_in], names[ordinal_in])} and "
+                                  f"{_named(specs[continuous_in], names[continuous_in])} treat {shown} differently "
+                                  f"(ordinal in the first, continuous in the second), so they describe different data "
+                                  f"and cannot be compared; declare the same 'ordinal' items in every model")
+
+
+def _named(spec: Spec, name: str) -> str:
+    """A model as the comparison calls it, with its file when the name is its title."""
+    source = Path(spec.source).name
+    return f"'{name}'" if Path(spec.source).stem == name or not spec.source else f"'{name}' ({source})"
 
 
 def _unique_names(specs: list[Spec]) -> list[str]:

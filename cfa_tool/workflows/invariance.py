@@ -22,7 +22,7 @@ from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ord
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design)
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
-from cfa_tool.errors import EstimationError, OptionError
+from cfa_tool.errors import EstimationError, ModelError, OptionError
 from cfa_tool.pipeline.continuous import assess, estimate
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
@@ -104,10 +104,19 @@ class InvarianceStep:
     freed: tuple = ()  # FreedParameter freed at this step (a partially invariant step)
     stopped: str = ""  # why the partial search stopped here
     delta_srmr: float | None = None
+    # 'noninvariant' statements of the model file that exempt a parameter held equal at this step: the step
+    # is partial invariance by the researcher's declaration
+    declared: tuple[ParameterRef, ...] = ()
 
     @property
     def partial(self) -> bool:
+        """Whether the partial-invariance search freed parameters at this step."""
         return bool(self.freed)
+
+    @property
+    def partly_equal(self) -> bool:
+        """Whether some parameters of the step's classes are not held equal (searched or declared)."""
+        return bool(self.freed or self.declared)
 
     def to_dict(self) -> dict:
         vs = _test_dict(self.versus_previous, self.delta_srmr)
@@ -128,8 +137,9 @@ class InvarianceStep:
             "judged_by": "its own fit (CFI, RMSEA and SRMR guide values)" if self.versus_previous is None
             else "the difference test against the step before",
             "conditional_on_a_rejected_step": self.conditional,
-            "partial": self.partial,
+            "partial": self.partly_equal,
             "freed": [f.to_dict() for f in self.freed],
+            "declared_not_equal": [{"kind": r.kind, "variables": list(r.names), "group": r.group} for r in self.declared],
             "with_every_equality": full,
             "search_stopped": self.stopped or None,
             "constraint_tests": [clean(c.to_dict()) for c in self.culprits[:10]],
@@ -158,6 +168,9 @@ class LatentDifference:
     variance: float
     variance_se: float
     reference_variance: float
+    # the factor is explained by a higher-order factor: mean and variance are the totals the model implies, not
+    # those of its disturbance
+    total: bool = False
 
     @property
     def variance_ratio(self) -> float:
@@ -167,7 +180,8 @@ class LatentDifference:
         return clean({"factor": self.factor, "group": self.group, "mean_difference": self.mean, "se": self.se,
                       "ci95": list(self.ci95), "p_value": self.p_value, "standardized_mean_difference": self.standardized,
                       "variance": self.variance, "variance_se": self.variance_se,
-                      "reference_variance": self.reference_variance, "variance_ratio": self.variance_ratio})
+                      "reference_variance": self.reference_variance, "variance_ratio": self.variance_ratio,
+                      "model_implied_totals": self.total})
 
 
 @dataclass(frozen=True, eq=False)
@@ -181,6 +195,7 @@ class InvarianceResult(Presentable):
     rule: DecisionRule = DecisionRule.DIFFERENCE_TEST
     latent_differences: tuple[LatentDifference, ...] = ()
     latent_note: str = ""  # which model the latent differences come from, or why there are none
+    means_not_estimated: tuple[str, ...] = ()  # higher-order factors whose means stay fixed at 0 in every group
 
     def to_dict(self) -> dict:
         return {
@@ -194,6 +209,7 @@ class InvarianceResult(Presentable):
             "freed": [f.to_dict() for f in self.freed],
             "latent_differences": [d.to_dict() for d in self.latent_differences],
             "latent_differences_note": self.latent_note,
+            "means_not_estimated": list(self.means_not_estimated),
         }
 
 
@@ -231,8 +247,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     # values that look like no answers, among the rows with a group label: first among the cautions
     data_cautions = tuple(p.line() for p in odd_value_problems(analysed_odd_values(loaded, spec, group)))
     if spec.invariant:
-        raise OptionError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "
-                          "'equal across groups' statements from the model file")
+        where = spec.equalities_location
+        raise ModelError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "
+                         "'equal across groups' statements from the model file", where, spec.source_line(where))
     ordinal_items = ordinal_items_of(spec, ordinal)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None:
@@ -291,7 +308,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                         data_cautions + (stopped,) + tuple(notes), rule)
             with threads:
                 test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
-            holds = configural_fits(result) if test is None else _step_holds(rule, test, alpha, result, previous[1], level)
+            # an inadmissible solution (negative variances, ...) cannot show that invariance holds, whatever its fit;
+            # the search goes on (a misfitting equality can itself push a variance below zero)
+            holds = result.admissible and (configural_fits(result) if test is None
+                                           else _step_holds(rule, test, alpha, result, previous[1], level))
             if full is None:
                 full = (result, test, holds)
             with threads:
@@ -320,19 +340,21 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         # the description of exactly the model fitted at this step, for the methods paragraph
         result = _described(result, level_spec, labels, ordinal_items)
         steps.append(InvarianceStep(level, result, test, holds, culprits, conditional, full[0], full[1], full[2],
-                                    tuple(freed_here), stopped if partial != "none" and kinds else "", srmr_change))
+                                    tuple(freed_here), stopped if partial != "none" and kinds else "", srmr_change,
+                                    tuple(r for r in spec.noninvariant if _exempts_a_class_of(r, classes))))
         previous = (est, result)
         start = est.theta
     warnings = list(notes)
-    if not steps[0].holds:
+    if not steps[0].holds and steps[0].result.admissible:
         fit = _fit_values(steps[0].result)
         warnings.insert(0, "the configural model does not fit by the guide values (" + ", ".join(
             f"{k.upper()} {_decimal(v)}" for k, v in fit.items()) + "): every later step compares models that already "
             "misfit, so its test says little about invariance; first find out why the model misfits (fit it in each "
             "group alone and read the modification indices and residuals), then test invariance")
     elif any(s.conditional for s in steps):
-        first = next(s.level for s in steps if not s.holds)
-        warnings.insert(0, f"the {first} step did not hold, so the steps after it compare models that already fail "
+        first = next(s for s in steps if not s.holds)
+        why = "was not admissible" if not first.result.admissible else "did not hold"
+        warnings.insert(0, f"the {first.level} step {why}, so the steps after it compare models that already fail "
                            f"it; they are marked as conditional on a rejected step")
     if freed:
         warnings.append(SEARCH_WARNING)
@@ -350,9 +372,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         warnings.insert(0, f"the {step.level} model's solution is not admissible ("
                            + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
                            + "): its fit and its difference test cannot show that invariance holds")
-    differences, latent_note = latent_differences(steps)
+    differences, latent_note, not_estimated = latent_differences(steps)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + tuple(warnings), rule,
-                            differences, latent_note)
+                            differences, latent_note, not_estimated)
 
 
 def _step_holds(rule: DecisionRule, test: DifferenceTest, alpha: float, result: FitResult, general: FitResult,
@@ -367,18 +389,20 @@ def _step_holds(rule: DecisionRule, test: DifferenceTest, alpha: float, result: 
     return by_change if rule is DecisionRule.FIT_CHANGE else (by_change and by_test)
 
 
-def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str]:
+def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[str, ...]]:
     """Factor means and variances of each group against the reference group, from the scalar model (partial
     when the search freed some of its equalities), with a note saying which model they come from or why
-    there are none: latent means are comparable only when loadings and intercepts (thresholds) are equal."""
+    there are none: latent means are comparable only when loadings and intercepts (thresholds) are equal.
+    A factor explained by a higher-order factor is compared by the total mean and variance the model implies;
+    a higher-order factor whose mean stays fixed at 0 in every group is returned by name, with no difference."""
     scalar = next((s for s in steps if s.level == "scalar"), None)
     if scalar is None:
-        return (), "No latent mean differences: the ladder did not reach the scalar step."
+        return (), "No latent mean differences: the ladder did not reach the scalar step.", ()
     if any(not s.holds for s in steps if s.level in ("thresholds", "metric", "scalar")):
         return (), ("No latent mean differences: the scalar step (or a step before it) did not hold, so the factor "
-                    "means of the groups are not on a common scale.")
+                    "means of the groups are not on a common scale."), ()
     if not scalar.result.admissible:
-        return (), "No latent mean differences: the scalar model's solution is not admissible."
+        return (), "No latent mean differences: the scalar model's solution is not admissible.", ()
     result = scalar.result
     labels = [g.label for g in result.groups]
     size = {g.label: g.data.n_obs for g in result.groups}
@@ -387,6 +411,7 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str]:
     # a factor's means are comparable when at least two of its items keep equal loadings and intercepts
     # (Byrne, Shavelson & Muthen 1989); with fewer, its scalar equality is not tested at all
     freed = [f for s in steps if s.level in ("thresholds", "metric", "scalar") for f in s.freed]
+    declared = scalar.declared  # the model file's exemptions in force at the scalar step
     items_of: dict[str, set[str]] = {}
     for r in result.estimates:
         if r.kind == "loading" and r.group == reference and r.variables[1] in result.observed:
@@ -395,31 +420,115 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str]:
     for factor, items in items_of.items():
         loose = {f.variables[-1] for f in freed if f.kind in ("intercept", "threshold") and f.variables[-1] in items}
         loose |= {f.variables[1] for f in freed if f.kind == "loading" and f.variables[0] == factor}
+        loose |= {r.names[-1] for r in declared if r.kind in ("intercept", "threshold") and r.names[-1] in items}
+        loose |= {r.names[1] for r in declared if r.kind == "loading" and r.names[0] == factor}
         if len(items - loose) < 2:
             too_few.append(factor)
+    higher = _higher_order_parents(result)
+    # a higher-order factor's mean stays fixed at 0 while the means of the factors it explains are free
+    fixed_means = [f for f in result.latent if f not in too_few and f in _higher_factors(higher)
+                   and not any(rows.get(("mean", (f,), g)) is not None and rows[("mean", (f,), g)].free
+                               for g in labels[1:])]
     out = []
     for factor in result.latent:
-        if factor in too_few:
+        if factor in too_few or factor in fixed_means:
             continue
-        ref_var = rows.get(("factor_variance", (factor,), reference))
         for label in labels[1:]:
-            mean = rows.get(("mean", (factor,), label))
-            var = rows.get(("factor_variance", (factor,), label))
-            if mean is None or var is None or ref_var is None:
+            row = rows.get(("mean", (factor,), label))
+            moments = [_total_moments(result, higher, rows, factor, g) for g in (reference, label)]
+            if row is None or None in moments:
                 continue
-            pooled = (size[reference] * ref_var.estimate + size[label] * var.estimate) / (size[reference] + size[label])
-            d = mean.estimate / np.sqrt(pooled) if pooled > 0 else float("nan")
-            out.append(LatentDifference(factor, label, mean.estimate, mean.se, mean.ci95, mean.p_value, float(d),
-                                        var.estimate, var.se, ref_var.estimate))
+            (ref_mean, ref_var), (mean, var) = moments
+            through = higher.get(factor, {})
+            if through and any(getattr(rows.get(("mean", (h,), g)), "free", False) for h in _ancestors(higher, factor)
+                               for g in (reference, label)):
+                se, ci, p = float("nan"), (float("nan"), float("nan")), float("nan")  # not a single parameter
+            else:
+                se, ci, p = row.se, row.ci95, row.p_value
+            pooled = (size[reference] * ref_var + size[label] * var) / (size[reference] + size[label])
+            d = (mean - ref_mean) / np.sqrt(pooled) if pooled > 0 else float("nan")
+            own = rows.get(("factor_variance", (factor,), label))
+            out.append(LatentDifference(factor, label, mean - ref_mean, se, ci, p, float(d), var,
+                                        own.se if own is not None and not through else float("nan"), ref_var,
+                                        bool(through)))
     withheld = (f" None for {', '.join(too_few)}: fewer than two of its items keep equal loadings and intercepts "
                 f"across groups, so the equality that makes its means comparable is not tested (Byrne, Shavelson & "
                 f"Muthen 1989)." if too_few else "")
-    which = "the partially invariant scalar model" if any(s.partial for s in steps if s.level != "strict") else \
-        "the scalar model"
+    lower = [f for f in result.latent if f in higher and f not in too_few]
+    if lower:
+        withheld += (f" {_capital_first(', '.join(lower))} {'are' if len(lower) > 1 else 'is'} explained by a "
+                     f"higher-order factor: {'their' if len(lower) > 1 else 'its'} mean and variance are the totals "
+                     f"the model implies (Bollen 1989: means (I - B)^-1 alpha, covariances (I - B)^-1 Psi "
+                     f"(I - B)^-T), not those of {'their' if len(lower) > 1 else 'its'} disturbance"
+                     f"{'s' if len(lower) > 1 else ''}, and d is over the pooled total standard deviation.")
+    if fixed_means:
+        withheld += (f" No mean difference for {', '.join(fixed_means)}: {'their' if len(fixed_means) > 1 else 'its'} "
+                     f"mean is fixed at 0 in every group (at this step the means of the factors it explains are free "
+                     f"in each group and take up any difference), so it is not estimated.")
+    which = "the partially invariant scalar model" if any(s.partly_equal for s in steps if s.level != "strict") \
+        else "the scalar model"
     return tuple(out), (f"From {which}: each group's factor means against the reference group {reference} (whose means "
                         f"are fixed at 0); standardized by the pooled latent standard deviation of the two groups."
-                        + ("" if steps[0].holds else " The configural model misfits, so read them with caution.")
-                        + withheld)
+                        + ("" if steps[0].holds else " The configural model misfits, so read them with caution."
+                           if steps[0].result.admissible else " The configural model's solution is not admissible, so "
+                           "read them with caution.")
+                        + withheld), tuple(fixed_means)
+
+
+def _capital_first(text: str) -> str:
+    return text[:1].upper() + text[1:]
+
+
+def _higher_order_parents(result: FitResult) -> dict[str, dict[str, dict[str, float]]]:
+    """For each factor explained by higher-order factors: {parent: {group: loading}} (latent-on-latent loadings)."""
+    out: dict[str, dict[str, dict[str, float]]] = {}
+    latent = set(result.latent)
+    for r in result.estimates:
+        if r.kind == "loading" and r.variables[1] in latent:
+            out.setdefault(r.variables[1], {}).setdefault(r.variables[0], {})[r.group] = r.estimate
+    return out
+
+
+def _higher_factors(higher: dict) -> set[str]:
+    """The higher-order factors (those that explain another factor)."""
+    return {parent for parents in higher.values() for parent in parents}
+
+
+def _ancestors(higher: dict, factor: str) -> list[str]:
+    out, todo = [], list(higher.get(factor, {}))
+    while todo:
+        h = todo.pop()
+        if h not in out:
+            out.append(h)
+            todo.extend(higher.get(h, {}))
+    return out
+
+
+def _total_moments(result: FitResult, higher: dict, rows: dict, factor: str, group: str) -> tuple[float, float] | None:
+    """A factor's total mean and variance in ``group`` as the model implies them (Bollen 1989, ch. 8: mean
+    (I - B)^-1 alpha, covariance (I - B)^-1 Psi (I - B)^-T): its own mean plus its higher-order factors' means
+    times its loadings on them; its variance from the group's total factor covariance matrix."""
+    def mean_of(f: str) -> float | None:
+        own = rows.get(("mean", (f,), group))
+        if own is None:
+            return None
+        total = own.estimate
+        for parent, loadings in higher.get(f, {}).items():
+            above = mean_of(parent)
+            if above is None or group not in loadings:
+                return None
+            total += loadings[group] * above
+        return total
+
+    g = next((x for x in result.groups if x.label == group), None)
+    mean = mean_of(factor)
+    if mean is None or g is None:
+        return None
+    if g.latent_covariance is None:  # without the total matrix: a first-order factor's own variance is its total
+        own = rows.get(("factor_variance", (factor,), group))
+        return (mean, own.estimate) if own is not None and factor not in higher else None
+    i = result.latent.index(factor)
+    return mean, float(g.latent_covariance[i, i])
 
 
 def _decimal(value: float) -> str:
