@@ -27,7 +27,7 @@ from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
-from cfa_tool.method import FitTest, MissingData, WeightKind, Weighting
+from cfa_tool.method import ADJUSTED_TEST, FitTest, MissingData, WeightKind, Weighting
 from cfa_tool.pipeline.results import CheckResult, FitResult
 
 
@@ -613,7 +613,10 @@ def without_exploratory_blocks(spec: Spec, command: str, why: str) -> Spec:
 def check_ordinal_options(fit_options) -> bool:
     """Refuse the options that cannot apply to ordinal items; whether rows with gaps are kept (pairwise
     present rows, the default) rather than left out (listwise, when asked)."""
-    if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test not in (FitTest.NORMAL, FitTest.ROBUST):
+    if fit_options.test is FitTest.ROBUST:
+        raise OptionError(f"ordinal items always get robust (sandwich) standard errors and the {ADJUSTED_TEST} test "
+                          "from the least-squares fit, so --robust cannot apply; remove it")
+    if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is not FitTest.NORMAL:
         raise OptionError("ordinal items use every answer through pairwise present rows (or only the complete rows with "
                           "--incomplete-rows listwise) and their own adjusted test; full-information ML and the "
                           "Satorra-Bentler and Yuan-Bentler tests are for continuous items")
