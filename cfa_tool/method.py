@@ -64,6 +64,11 @@ class Weighting(Choice):
 #: (declared once): the statistic is chi-square x scale + shift (Asparouhov & Muthen 2010), and the difference of two
 #: nested fits is adjusted the same way (Satorra 2000; Asparouhov & Muthen 2006).
 ADJUSTED_TEST = "scale-shifted, mean and variance adjusted"
+#: what pairwise present rows assume, in the note, the methods paragraphs and README alike: the estimates of each
+#: threshold and correlation from the rows that answered its items are consistent when answers are missing completely
+#: at random (Little & Rubin 2002), while full-information estimation needs them only missing at random
+MISSING_COMPLETELY_AT_RANDOM = ("answers are missing completely at random (whether an answer is missing does not depend "
+                                "on the person's answers, given or not; Little & Rubin, 2002)")
 
 
 class FitTest(Choice):

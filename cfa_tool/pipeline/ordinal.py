@@ -32,7 +32,7 @@ from cfa_tool.inference.adjusted import (AdjustedTest, adjusted_fit, adjusted_fr
 from cfa_tool.inference.standard_errors import wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import ParameterRef, Spec, ValueSetting
-from cfa_tool.method import ADJUSTED_TEST, Estimator, FitMethod, FitTest, Information, Items, MissingData, Weighting
+from cfa_tool.method import ADJUSTED_TEST, MISSING_COMPLETELY_AT_RANDOM, Estimator, FitMethod, FitTest, Information, Items, MissingData, Weighting
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
@@ -142,9 +142,10 @@ def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
         complete = int((moments.codes >= 0).all(axis=1).sum())
         out.append(f"missing answers{where}: every answer is used (pairwise present rows): each item's thresholds come "
                    f"from the rows that answered it, each correlation from the rows that answered both items, from "
-                   f"{low[2]} rows ({low[0]}, {low[1]}) to {high[2]} ({high[0]}, {high[1]}) of {len(moments.codes)}; the "
-                   f"standard errors and tests allow for this; a fit of only the {complete} complete rows would "
-                   f"leave the others out")
+                   f"{low[2]} rows ({low[0]}, {low[1]}) to {high[2]} ({high[0]}, {high[1]}) of {len(moments.codes)}; "
+                   f"pairwise present rows assume that {MISSING_COMPLETELY_AT_RANDOM} (full-information estimation, "
+                   f"valid when answers are missing at random, is not available for ordinal items); the standard errors and tests allow for the differing numbers "
+                   f"of rows; a fit of only the {complete} complete rows would leave the others out and assume the same")
     return out
 
 

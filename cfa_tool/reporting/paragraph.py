@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import math
 
-from cfa_tool.method import DifferenceMethod, Information, FitTest, Items, MissingData
+from cfa_tool.method import MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
@@ -220,6 +220,15 @@ def _capital(text: str) -> str:
     return text[:1].upper() + text[1:]
 
 
+_PAIRWISE_ASSUMPTION = f"Using each pair's rows assumes that {MISSING_COMPLETELY_AT_RANDOM}."
+
+
+def _pairs_with_gaps(result) -> bool:
+    """Whether some correlation of an ordinal fit came from fewer rows than were analysed (pairwise present rows)."""
+    pairs = result.data.pair_range
+    return pairs is not None and pairs[0] < result.n_obs
+
+
 def _sample_phrase(result) -> str:
     data = result.data
     text = f"N = {result.n_obs}"
@@ -234,7 +243,7 @@ def _sample_phrase(result) -> str:
         text += (f"; every answer of every row was used, including rows with missing answers (each item answered in "
                  f"at least {floor:g}% of the rows)")
     pairs = data.pair_range
-    if pairs is not None and pairs[0] < result.n_obs:
+    if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
                  f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair")
     if data.rows_dropped:
@@ -301,6 +310,8 @@ def methods_paragraph(result) -> str:
     else:
         parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
+    if _pairs_with_gaps(result):
+        parts.append(_PAIRWISE_ASSUMPTION)
     design = getattr(result, "design", None)
     if design is not None:
         parts.append(design.sentence(result.method.full_information, result.method.ordinal))
@@ -419,6 +430,8 @@ def comparison_paragraph(comparison) -> str:
     first = results[0]
     parts = [f"{_capital(_count(len(names), 'model'))} of the same {_count(len(first.observed), 'indicator')} were "
              f"compared on the same rows ({_comparison_rows(comparison)}), each estimated by {_estimator_phrase(first)}."]
+    if comparison.missing is MissingData.PAIRWISE and _pairs_with_gaps(first):
+        parts.append(_PAIRWISE_ASSUMPTION)
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
     design = getattr(first, "design", None)
     if design is not None:
