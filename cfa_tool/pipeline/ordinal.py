@@ -20,6 +20,7 @@ from cfa_tool.assessment.admissibility import solution_problems
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.fit_indices import fit_indices, srmr
 from cfa_tool.assessment.identification import check_information_rank
+from cfa_tool.assessment.ordinal_reliability import with_observed_sum_omega
 from cfa_tool.assessment.modification import (ModificationIndices, candidate_arrays, candidate_entries,
                                                collected_indices, least_squares_score_tests)
 from cfa_tool.assessment.reliability import keying_warnings, reliability
@@ -260,6 +261,10 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
                                                                                                           order)
     factors, htmt = reliability(final, table.observed, table.latent, R, declared=spec.reverse_keyed or None,
                                 sum_scores=False, not_traits=spec.method_factors | spec.exploratory_factors)
+    ordinal_items = [k for k in order if moments.names[k] not in moments.continuous]
+    factors = with_observed_sum_omega(factors, final, table.observed, table.latent,
+                                      {moments.names[k]: np.asarray(moments.thresholds[k], float) for k in ordinal_items},
+                                      {moments.names[k]: np.asarray(moments.categories[k], float) for k in ordinal_items})
     if opt.converged:
         warnings.extend(keying_warnings(factors))
     summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
@@ -501,6 +506,12 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                               pair_rows=_pair_rows(mg, list(range(p))))
         factors, htmt = reliability(mats[g], table.observed, table.latent, mg.correlations,
                                     declared=spec.reverse_keyed or None, sum_scores=False, not_traits=spec.method_factors)
+        tau = model.thresholds(theta, g)
+        ordinal_items = [j for j, x in enumerate(table.observed) if x not in mg.continuous]
+        factors = with_observed_sum_omega(factors, mats[g], table.observed, table.latent,
+                                          {table.observed[j]: tau[obj.item_of == j] for j in ordinal_items},
+                                          {table.observed[j]: np.asarray(mg.categories[j], float) for j in ordinal_items},
+                                          mats[g].implied_mean())
         if est.converged:
             warnings.extend(keying_warnings(factors, f"group {lab}: "))
         group_results.append(GroupResult(label=lab, data=summary, chi_square=shares[g], srmr=srmrs[g],
