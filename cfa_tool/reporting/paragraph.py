@@ -469,8 +469,9 @@ def comparison_paragraph(comparison) -> str:
             continue
         t = shown[(restricted, general)][0]
         which = f", {t.method}" if len(methods) > 1 else ""
-        sentence = (f"{pair}: {CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}{which}; "
-                    f"\u0394CFI = {signed(t.delta_cfi)}, \u0394RMSEA = {signed(t.delta_rmsea)}.")
+        sentence = (f"{pair}: {CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}{which}"
+                    + ("." if first.method.ordinal else
+                       f"; \u0394CFI = {signed(t.delta_cfi)}, \u0394RMSEA = {signed(t.delta_rmsea)}."))
         if t.boundary:
             sentence += (f" Because {label[restricted]} has {_list(list(t.boundary))}, values on the boundary of the "
                          f"parameter space of {label[general]}, the difference does not follow the usual chi-square "
@@ -483,7 +484,10 @@ def comparison_paragraph(comparison) -> str:
     for n in comparison.not_nested:
         after = " and were compared by AIC and BIC" if n.information_criteria else ""
         parts.append(f"{label[n.first]} and {label[n.second]} were not tested against each other ({n.reason}){after}.")
-    if pairs:
+    if pairs and first.method.ordinal:
+        parts.append("Changes in CFI and RMSEA were not used: each model's indices come from its own adjusted "
+                     "statistic, so their changes cannot be compared across models.")
+    elif pairs:
         parts.append("Changes in CFI and RMSEA were read against conventional guides (Cheung & Rensvold, 2002; Chen, "
                      "2007), which are conventions rather than tests.")
     return " ".join(parts)
