@@ -13,7 +13,8 @@ from __future__ import annotations
 
 import math
 
-from cfa_tool.method import MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData
+from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
+                              Weighting)
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
@@ -36,14 +37,34 @@ def _pair(pair) -> str:
     return f"{pair[0]} with {pair[1]}"
 
 
+def _correlation_kinds(result) -> tuple[str, str]:
+    """(kind, aside): the correlations of an ordinal fit's items by their numbers of categories, tetrachoric between
+    items with two, polychoric otherwise (the tetrachoric is the polychoric correlation of two-category items)."""
+    counts = [len(c) for c in result.data.categories if c]  # continuous items beside them have none
+    if counts and all(c == 2 for c in counts):
+        return "tetrachoric", ""
+    if any(c == 2 for c in counts):
+        return "polychoric", " (tetrachoric between items with two categories)"
+    return "polychoric", ""
+
+
+def design_sentence(result) -> str:
+    """The sampling design of ``result`` as the methods paragraph states it."""
+    method = result.method
+    kind = _correlation_kinds(result)[0] if method.ordinal else "polychoric"  # the estimator's phrase has the aside
+    return result.design.sentence(method.full_information, method.ordinal, f"{kind} correlations",
+                                  method.weighting is Weighting.DIAGONAL)
+
+
 def _estimator_phrase(result) -> str:
     method = result.method
     if method.ordinal:
+        kind, aside = _correlation_kinds(result)
         extra = " and polyserial" if method.items is Items.MIXED else ""
         moments = (" (and the means and variances of the continuous items)"
                    if method.items is Items.MIXED and method.thresholds else "")
-        return (f"{method.weighting.label} least squares on polychoric{extra} correlations of the ordinal items{moments}, "
-                f"with robust standard errors")
+        return (f"{method.weighting.label} least squares on {kind}{extra} correlations{aside} of the ordinal "
+                f"items{moments}, with robust standard errors")
     base = "full-information maximum likelihood" if method.full_information else "maximum likelihood"
     if result.robust is not None:
         test = "Yuan-Bentler" if method.full_information else "Satorra-Bentler"
@@ -314,7 +335,7 @@ def methods_paragraph(result) -> str:
         parts.append(_PAIRWISE_ASSUMPTION)
     design = getattr(result, "design", None)
     if design is not None:
-        parts.append(design.sentence(result.method.full_information, result.method.ordinal))
+        parts.append(design_sentence(result))
     inadmissible = not result.admissible
     if inadmissible:
         serious = [p for p in result.problems if p.kind.inadmissible]
@@ -435,7 +456,7 @@ def comparison_paragraph(comparison) -> str:
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
     design = getattr(first, "design", None)
     if design is not None:
-        parts.append(design.sentence(first.method.full_information, first.method.ordinal))
+        parts.append(design_sentence(first))
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
     parts.append(f"Fit{statistic}: " + "; ".join(f"{label[name]}, {_fit_figures(r)}" for name, r in zip(names, results)) + ".")
     for name, r in zip(names, results):
@@ -539,7 +560,7 @@ def invariance_paragraph(result, levels) -> str:
                      f"{result.groups[0]} were fixed at zero.")
     design = getattr(first, "design", None)
     if design is not None:
-        parts.append(design.sentence(first.method.full_information, first.method.ordinal))
+        parts.append(design_sentence(first))
     methods = sorted({s.versus_previous.method for s in steps[1:] if s.versus_previous is not None
                       and not s.versus_previous.not_computed}, key=_PREFERRED.index)
     rule = result.rule.description.replace("alpha", unit(result.alpha, 2)).replace(">=", "\u2265")

@@ -9,7 +9,7 @@ from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.paragraph import comparison_paragraph, invariance_paragraph
+from cfa_tool.reporting.paragraph import comparison_paragraph, design_sentence, invariance_paragraph
 from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit, word_list
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
 
@@ -122,7 +122,7 @@ def _information_criterion(value) -> str:
 def _design_lines(result) -> tuple[str, ...]:
     """The sampling design of a fit in one line (none without a design)."""
     design = getattr(result, "design", None)
-    return (design.sentence(result.method.full_information, result.method.ordinal),) if design is not None else ()
+    return (design_sentence(result),) if design is not None else ()
 
 
 BOUNDARY_CAUTION = ("values on the boundary of what the general model allows, so the chi-square difference does not "
