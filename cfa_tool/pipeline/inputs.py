@@ -407,7 +407,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                                   frequency_weights=counted_by(design))
         gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
         return _described(replace(converged(result), warnings=tuple(notes) + result.warnings,
-                                  missing_data=summary if gaps else None), spec, labels, ordinal_items)
+                                  missing_data=summary if gaps else None, labels=_file_labels(loaded, spec)),
+                          spec, labels, ordinal_items)
     values = loaded.items.of(frame, spec.observed_names) if loaded.items is not None else None
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values)
     notes = missing_notes + notes
@@ -425,15 +426,21 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
     summary = None if every_row_complete else missing_summary(analysed, spec.observed_names,
                                                               frequency_weights=counted_by(design))
+    result = replace(result, warnings=tuple(notes) + result.warnings,
+                     missing_data=summary if summary is not None and (summary["n_patterns"] > 1
+                                                                      or not all(summary["coverage"].values())) else None,
+                     labels=_file_labels(loaded, spec))
+    return _described(result, spec, tuple(label for label, _ in groups) if group is not None else None)
+
+
+def _file_labels(loaded, spec: Spec) -> dict | None:
+    """The data file's variable and value labels of the model's items (SPSS, Stata), for the JSON and the HTML
+    report of continuous and ordinal fits alike; None when the file has none."""
     labels = {
         "variables": {k: v for k, v in loaded.variable_labels.items() if k in spec.observed_names},
         "values": {k: v for k, v in loaded.value_labels.items() if k in spec.observed_names},
     }
-    result = replace(result, warnings=tuple(notes) + result.warnings,
-                     missing_data=summary if summary is not None and (summary["n_patterns"] > 1
-                                                                      or not all(summary["coverage"].values())) else None,
-                     labels=labels if labels["variables"] or labels["values"] else None)
-    return _described(result, spec, tuple(label for label, _ in groups) if group is not None else None)
+    return labels if labels["variables"] or labels["values"] else None
 
 
 def counted_by(design: DesignColumns | None) -> str | None:
