@@ -73,8 +73,7 @@ ORDINAL_FIT_CHANGE = ("with ordinal items each model's CFI and RMSEA come from i
 #: what pairwise present rows assume, in the note, the methods paragraphs and README alike: the estimates of each
 #: threshold and correlation from the rows that answered its items are consistent when answers are missing completely
 #: at random (Little & Rubin 2002), while full-information estimation needs them only missing at random
-MISSING_COMPLETELY_AT_RANDOM = ("answers are missing completely at random (whether an answer is missing does not depend "
-                                "on the person's answers, given or not; Little & Rubin, 2002)")
+MISSING_COMPLETELY_AT_RANDOM = "answers are missing completely at random"
 
 
 class FitTest(Choice):

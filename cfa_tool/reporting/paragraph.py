@@ -241,7 +241,8 @@ def _capital(text: str) -> str:
     return text[:1].upper() + text[1:]
 
 
-_PAIRWISE_ASSUMPTION = f"Using each pair's rows assumes that {MISSING_COMPLETELY_AT_RANDOM}."
+#: what pairwise present rows assume, at the end of the rows' phrase (inside parentheses: the citation after a comma)
+_PAIRWISE_ASSUMPTION = f", which assumes that {MISSING_COMPLETELY_AT_RANDOM}, Little & Rubin, 2002"
 
 
 def _pairs_with_gaps(result) -> bool:
@@ -266,7 +267,7 @@ def _sample_phrase(result) -> str:
     pairs = data.pair_range
     if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
-                 f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair")
+                 f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair{_PAIRWISE_ASSUMPTION}")
     if data.rows_dropped:
         if full_information or result.method.missing is MissingData.PAIRWISE:
             text += f"; {data.rows_dropped} of {data.rows_read} rows answered no model variable and were left out"
@@ -331,8 +332,6 @@ def methods_paragraph(result) -> str:
     else:
         parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
-    if _pairs_with_gaps(result):
-        parts.append(_PAIRWISE_ASSUMPTION)
     design = getattr(result, "design", None)
     if design is not None:
         parts.append(design_sentence(result))
@@ -432,7 +431,8 @@ def _comparison_rows(comparison) -> str:
         how = "every answer of every row was used, including rows with missing answers"
     elif comparison.missing is MissingData.PAIRWISE:
         how = ("every answer was used: each item's thresholds from the rows that answered it and each correlation "
-               "from the rows that answered both items")
+               "from the rows that answered both items" + (_PAIRWISE_ASSUMPTION if _pairs_with_gaps(comparison.results[0])
+                                                            else ""))
     else:
         how = (f"{dropped} of {n + dropped} rows with a missing answer on some model's variables were excluded listwise"
                if dropped else "")
@@ -451,8 +451,6 @@ def comparison_paragraph(comparison) -> str:
     first = results[0]
     parts = [f"{_capital(_count(len(names), 'model'))} of the same {_count(len(first.observed), 'indicator')} were "
              f"compared on the same rows ({_comparison_rows(comparison)}), each estimated by {_estimator_phrase(first)}."]
-    if comparison.missing is MissingData.PAIRWISE and _pairs_with_gaps(first):
-        parts.append(_PAIRWISE_ASSUMPTION)
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
     design = getattr(first, "design", None)
     if design is not None:

@@ -179,12 +179,18 @@ def test_the_note_and_the_methods_paragraphs_state_the_missing_data_assumption()
     data = _sample(400, 7, share=0.1)
     result = cfa_tool.fit(ONE_FACTOR, data, ordinal="all")
     note = next(w for w in result.warnings if "pairwise present rows" in w)
-    assert "missing completely at random" in note and "valid when answers are missing at random" in note
+    assert "missing completely at random (whether an answer is missing" in note
+    assert "valid when answers are missing at random" in note
     paragraph = methods_paragraph(result)
-    assert "Using each pair's rows assumes that answers are missing completely at random" in paragraph
+    assert "rows per pair, which assumes that answers are missing completely at random, Little & Rubin, 2002)" in paragraph
     two = "factor f: y1..y3\nfactor g: y4..y6\n"
     compared = cfa_tool.compare([ONE_FACTOR, two], data, ordinal="all")
-    assert "assumes that answers are missing completely at random" in comparison_paragraph(compared)
+    assert "both items, which assumes that answers are missing completely at random" in comparison_paragraph(compared)
+    from cfa_tool.reporting.reports import report_of
+
+    halves = pd.concat([data.assign(site="east"), _sample(400, 8, share=0.1).assign(site="west")])
+    ladder = cfa_tool.invariance(ONE_FACTOR, halves, "site", ordinal="all")
+    assert "which assumes that answers are missing completely at random" in report_of(ladder).paragraph
     complete = _sample(400, 7, share=0.0)
     assert "completely at random" not in methods_paragraph(cfa_tool.fit(ONE_FACTOR, complete, ordinal="all"))
     assert "completely at random" not in comparison_paragraph(cfa_tool.compare([ONE_FACTOR, two], complete,
