@@ -68,6 +68,9 @@ class FactorReliability:
     sum_score_sd: float | None = None
     item_total: tuple[float, ...] = ()  # corrected item-total correlations of the factor's own items (first-order)
     against_keying: tuple[str, ...] = ()  # declared keying contradicted by the loadings' signs
+    # ordinal items: the reliability of the keyed sum of the answers' codes (Green & Yang 2009;
+    # assessment/ordinal_reliability.py), beside the coefficients above, which describe the latent responses
+    observed_sum_omega: float | None = None
 
     def to_dict(self) -> dict:
         d = dict(vars(self))  # every field is a number, a word or a tuple of them, converted below

@@ -68,40 +68,59 @@ class SampleDesign:
     effective_n: float | None  # Kish (1965)
     clusters: int | None
     strata: int | None
+    group_rows: tuple[int, ...] = ()  # rows of each group when there are several (sampling weights rescaled in each)
 
     def to_dict(self) -> dict:
         c = self.columns
         return {"weights": c.weights, "weight_kind": c.kind.value if c.weights else None,
                 "sum_of_weights": self.sum_of_weights, "effective_sample_size": self.effective_n,
                 "cluster": c.cluster, "clusters": self.clusters, "strata_column": c.strata, "strata": self.strata,
-                "rows": self.rows, "sandwich": c.robust}
+                "rows": self.rows, "rows_per_group": list(self.group_rows) or None, "sandwich": c.robust}
 
-    def sentence(self, full_information: bool = False, ordinal: bool = False) -> str:
-        """The design in the words of a methods paragraph (``ordinal``: of a fit to thresholds and polychoric
-        correlations)."""
+    def sentence(self, full_information: bool = False, ordinal: bool = False,
+                 correlations: str = "polychoric correlations", weighted_least_squares: bool = True) -> str:
+        """The design in the words of a methods paragraph, as the code uses it (``ordinal``: of a fit to thresholds
+        and ``correlations``, e.g. 'tetrachoric correlations', whose least-squares weights, when
+        ``weighted_least_squares``, come from their design-based covariance)."""
         c = self.columns
         parts = []
         if c.weights is not None:
             if c.kind is WeightKind.FREQUENCY:
                 parts.append(f"frequency weights from the column {c.weights} (sum {self.sum_of_weights:g}, taken as N)")
             else:
-                parts.append(f"sampling weights from the column {c.weights} (sum {self.sum_of_weights:.6g}, rescaled to "
-                             f"sum to the {self.rows} rows; Kish's effective sample size {self.effective_n:.1f}), by "
+                within = (f"rescaled within each group to sum to its rows ({', '.join(map(str, self.group_rows))})"
+                          if self.group_rows
+                          else f"rescaled to sum to the {self.rows} rows")
+                parts.append(f"sampling weights from the column {c.weights} (sum {self.sum_of_weights:.6g}, {within}; "
+                             f"Kish's effective sample size {self.effective_n:.1f}), by "
                              + ("the weighted full-information likelihood (Asparouhov 2005)" if full_information else
-                                "weighted thresholds and polychoric correlations (pseudo-maximum likelihood; Muthen & "
-                                "Satorra 1995; Asparouhov 2005)" if ordinal else
+                                f"weighted thresholds and {correlations} (pseudo-maximum likelihood; Muthen & "
+                                f"Satorra 1995; Asparouhov 2005)" if ordinal else
                                 "pseudo-maximum likelihood on weighted moments (Muthen & Satorra 1995)"))
         if c.cluster is not None:
             parts.append(f"{self.clusters} clusters defined by {c.cluster}")
         if c.strata is not None:
             parts.append(f"{self.strata} strata defined by {c.strata}")
         text = "The sampling design was taken into account: " + "; ".join(parts) + "."
-        if c.robust:
-            text += (" Standard errors are sandwich estimates from the "
-                     + ("per-cluster sums of the rows' score contributions" if c.cluster else "rows' weighted score "
-                                                                                          "contributions")
-                     + " and the chi-square is scaled accordingly.")
-        return text
+        if not c.robust:
+            return text
+        # inference/design.design_meat: weighted sums per cluster (or per row), centred within strata, C/(C - 1)
+        units = "clusters" if c.cluster else "rows"
+        if c.strata is not None:
+            spread = (f"the {units}' weighted sums centred within each stratum (the variance between {units} within "
+                      f"strata, times C_h/(C_h - 1) for the C_h {units} of stratum h; Binder 1983)")
+        else:
+            spread = f"the {units}' weighted sums" + (" (times C/(C - 1) for C clusters; Binder 1983)" if c.cluster else "")
+        if ordinal:
+            weights = ("The least-squares weights come from the design-based covariance of the thresholds and "
+                       "correlations; the standard errors and the scale-shifted test come from it too" if
+                       weighted_least_squares else
+                       "The standard errors and the scale-shifted test come from the design-based covariance of the "
+                       "thresholds and correlations")
+            return text + (f" {weights}: the covariance of their influence functions (the rows' contributions to their "
+                           f"estimating equations) over {spread}.")
+        return text + (f" Standard errors are sandwich estimates from the rows' score contributions over {spread}, and "
+                       f"the chi-square is scaled accordingly.")
 
     def status(self) -> str:
         """The design in the status line: 'design: sampling weights (w; sum 912, Kish's effective N 783.2),
@@ -345,7 +364,9 @@ def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list) -
     kish = total ** 2 / square if total is not None and columns.kind is WeightKind.SAMPLING else total
     clusters = sum(len(np.unique(m.design.clusters)) for m in moments) if columns.cluster else None
     strata = len(pd.unique(_labels(frame[columns.strata]))) if columns.strata else None
-    return SampleDesign(columns, rows, total, kish, clusters, strata)
+    group_rows = tuple(len(m.design.weights) for m in moments) if len(moments) > 1 else ()
+    return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows)
+
 
 
 def apply_design(groups: list, frame: pd.DataFrame, group_column: str | None, names: tuple[str, ...], source: str,

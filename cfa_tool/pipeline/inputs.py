@@ -27,7 +27,7 @@ from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
-from cfa_tool.method import FitTest, MissingData, WeightKind, Weighting
+from cfa_tool.method import ADJUSTED_TEST, FitTest, MissingData, WeightKind, Weighting
 from cfa_tool.pipeline.results import CheckResult, FitResult
 
 
@@ -401,7 +401,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                                   frequency_weights=counted_by(design))
         gaps = summary["n_patterns"] > 1 or not all(summary["coverage"].values())
         return _described(replace(converged(result), warnings=tuple(notes) + result.warnings,
-                                  missing_data=summary if gaps else None), spec, labels, ordinal_items)
+                                  missing_data=summary if gaps else None, labels=_file_labels(loaded, spec)),
+                          spec, labels, ordinal_items)
     values = loaded.items.of(frame, spec.observed_names) if loaded.items is not None else None
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values)
     notes = missing_notes + notes
@@ -419,16 +420,22 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                           and not any(m.rows is not None and np.isnan(m.rows).any() for _, m in groups))
     summary = None if every_row_complete else missing_summary(analysed, spec.observed_names,
                                                               frequency_weights=counted_by(design))
-    labels = {
-        "variables": {k: v for k, v in loaded.variable_labels.items() if k in spec.observed_names},
-        "values": {k: v for k, v in loaded.value_labels.items() if k in spec.observed_names},
-    }
     group_labels = tuple(label for label, _ in groups) if group is not None else None
     return replace(result, warnings=tuple(notes) + result.warnings,  # with _described's description: one replace
                    missing_data=summary if summary is not None and (summary["n_patterns"] > 1
                                                                     or not all(summary["coverage"].values())) else None,
-                   labels=labels if labels["variables"] or labels["values"] else None,
+                   labels=_file_labels(loaded, spec),
                    description=_description(spec, group_labels, None if group_labels is None else ()))
+
+
+def _file_labels(loaded, spec: Spec) -> dict | None:
+    """The data file's variable and value labels of the model's items (SPSS, Stata), for the JSON and the HTML
+    report of continuous and ordinal fits alike; None when the file has none."""
+    labels = {
+        "variables": {k: v for k, v in loaded.variable_labels.items() if k in spec.observed_names},
+        "values": {k: v for k, v in loaded.value_labels.items() if k in spec.observed_names},
+    }
+    return labels if labels["variables"] or labels["values"] else None
 
 
 def counted_by(design: DesignColumns | None) -> str | None:
@@ -608,7 +615,10 @@ def without_exploratory_blocks(spec: Spec, command: str, why: str) -> Spec:
 def check_ordinal_options(fit_options) -> bool:
     """Refuse the options that cannot apply to ordinal items; whether rows with gaps are kept (pairwise
     present rows, the default) rather than left out (listwise, when asked)."""
-    if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test not in (FitTest.NORMAL, FitTest.ROBUST):
+    if fit_options.test is FitTest.ROBUST:
+        raise OptionError(f"ordinal items always get robust (sandwich) standard errors and the {ADJUSTED_TEST} test "
+                          "from the least-squares fit, so --robust cannot apply; remove it")
+    if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is not FitTest.NORMAL:
         raise OptionError("ordinal items use every answer through pairwise present rows (or only the complete rows with "
                           "--incomplete-rows listwise) and their own adjusted test; full-information ML and the "
                           "Satorra-Bentler and Yuan-Bentler tests are for continuous items")

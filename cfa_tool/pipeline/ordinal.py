@@ -20,6 +20,7 @@ from cfa_tool.assessment.admissibility import solution_problems
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.fit_indices import fit_indices, srmr
 from cfa_tool.assessment.identification import check_information_rank
+from cfa_tool.assessment.ordinal_reliability import with_observed_sum_omega
 from cfa_tool.assessment.modification import (ModificationIndices, candidate_arrays, candidate_entries,
                                                collected_indices, least_squares_score_tests)
 from cfa_tool.assessment.reliability import keying_warnings, reliability
@@ -32,7 +33,7 @@ from cfa_tool.inference.adjusted import (AdjustedTest, adjusted_fit, adjusted_fr
 from cfa_tool.inference.standard_errors import wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import ParameterRef, Spec, ValueSetting
-from cfa_tool.method import ADJUSTED_TEST, Estimator, FitMethod, FitTest, Information, Items, MissingData, Weighting
+from cfa_tool.method import ADJUSTED_TEST, MISSING_COMPLETELY_AT_RANDOM, Estimator, FitMethod, FitTest, Information, Items, MissingData, Weighting
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
@@ -142,9 +143,11 @@ def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
         complete = int((moments.codes >= 0).all(axis=1).sum())
         out.append(f"missing answers{where}: every answer is used (pairwise present rows): each item's thresholds come "
                    f"from the rows that answered it, each correlation from the rows that answered both items, from "
-                   f"{low[2]} rows ({low[0]}, {low[1]}) to {high[2]} ({high[0]}, {high[1]}) of {len(moments.codes)}; the "
-                   f"standard errors and tests allow for this; a fit of only the {complete} complete rows would "
-                   f"leave the others out")
+                   f"{low[2]} rows ({low[0]}, {low[1]}) to {high[2]} ({high[0]}, {high[1]}) of {len(moments.codes)}; "
+                   f"pairwise present rows assume that {MISSING_COMPLETELY_AT_RANDOM} (whether an answer is missing "
+                   f"does not depend on the person's answers, given or not; Little & Rubin 2002; full-information estimation, "
+                   f"valid when answers are missing at random, is not available for ordinal items); the standard errors and tests allow for the differing numbers "
+                   f"of rows; a fit of only the {complete} complete rows would leave the others out and assume the same")
     return out
 
 
@@ -259,6 +262,10 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
                                                                                                           order)
     factors, htmt = reliability(final, table.observed, table.latent, R, declared=spec.reverse_keyed or None,
                                 sum_scores=False, not_traits=spec.method_factors | spec.exploratory_factors)
+    ordinal_items = [k for k in order if moments.names[k] not in moments.continuous]
+    factors = with_observed_sum_omega(factors, final, table.observed, table.latent,
+                                      {moments.names[k]: np.asarray(moments.thresholds[k], float) for k in ordinal_items},
+                                      {moments.names[k]: np.asarray(moments.categories[k], float) for k in ordinal_items})
     if opt.converged:
         warnings.extend(keying_warnings(factors))
     summary = DataSummary(moments.source, moments.rows_read, moments.rows_dropped, n, table.observed,
@@ -500,6 +507,12 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
                               pair_rows=_pair_rows(mg, list(range(p))))
         factors, htmt = reliability(mats[g], table.observed, table.latent, mg.correlations,
                                     declared=spec.reverse_keyed or None, sum_scores=False, not_traits=spec.method_factors)
+        tau = model.thresholds(theta, g)
+        ordinal_items = [j for j, x in enumerate(table.observed) if x not in mg.continuous]
+        factors = with_observed_sum_omega(factors, mats[g], table.observed, table.latent,
+                                          {table.observed[j]: tau[obj.item_of == j] for j in ordinal_items},
+                                          {table.observed[j]: np.asarray(mg.categories[j], float) for j in ordinal_items},
+                                          mats[g].implied_mean())
         if est.converged:
             warnings.extend(keying_warnings(factors, f"group {lab}: "))
         group_results.append(GroupResult(label=lab, data=summary, chi_square=shares[g], srmr=srmrs[g],

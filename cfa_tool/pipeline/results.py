@@ -341,6 +341,13 @@ class FitResult(Presentable):
 
         return pd.DataFrame(estimate_dicts(self.estimates))
 
+    def reliability_scale(self) -> str:
+        """What the JSON's reliability coefficients describe."""
+        if not self.method.ordinal:
+            return "observed items"
+        return ("latent responses (ordinal), except observed_sum_omega: the keyed sum of the answers' codes "
+                "(Green & Yang 2009)")
+
     def to_dict(self) -> dict:
         out = {
             "admissible": self.admissible,
@@ -366,7 +373,7 @@ class FitResult(Presentable):
                     "r_squared": clean(dict(g.r_squared)),
                     "residuals": g.residuals_dict(self.observed),
                     "normality": clean(g.normality.to_dict()) if g.normality is not None else None,
-                    "reliability": g.reliability_dict(),
+                    "reliability": {**g.reliability_dict(), "scale": self.reliability_scale()},
                     "diagnostics": g.diagnostics_dict(),
                     **({"pair_rows": g.data.to_dict()["pair_rows"]} if g.data.pair_rows else {}),
                 }
@@ -378,7 +385,7 @@ class FitResult(Presentable):
             normality = self.groups[0].normality
             out["normality"] = clean(normality.to_dict()) if normality is not None else None
             out["reliability"] = self.groups[0].reliability_dict()
-            out["reliability"]["scale"] = "latent responses (ordinal)" if self.method.ordinal else "observed items"
+            out["reliability"]["scale"] = self.reliability_scale()
             out["diagnostics"] = self.groups[0].diagnostics_dict()
         out["missing_data"] = clean(self.missing_data) if self.missing_data is not None else None
         out["design"] = clean(self.design.to_dict()) if self.design is not None else None

@@ -13,7 +13,8 @@ from __future__ import annotations
 
 import math
 
-from cfa_tool.method import DifferenceMethod, Information, FitTest, Items, MissingData
+from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
+                              Weighting)
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
@@ -36,14 +37,34 @@ def _pair(pair) -> str:
     return f"{pair[0]} with {pair[1]}"
 
 
+def _correlation_kinds(result) -> tuple[str, str]:
+    """(kind, aside): the correlations of an ordinal fit's items by their numbers of categories, tetrachoric between
+    items with two, polychoric otherwise (the tetrachoric is the polychoric correlation of two-category items)."""
+    counts = [len(c) for c in result.data.categories if c]  # continuous items beside them have none
+    if counts and all(c == 2 for c in counts):
+        return "tetrachoric", ""
+    if any(c == 2 for c in counts):
+        return "polychoric", " (tetrachoric between items with two categories)"
+    return "polychoric", ""
+
+
+def design_sentence(result) -> str:
+    """The sampling design of ``result`` as the methods paragraph states it."""
+    method = result.method
+    kind = _correlation_kinds(result)[0] if method.ordinal else "polychoric"  # the estimator's phrase has the aside
+    return result.design.sentence(method.full_information, method.ordinal, f"{kind} correlations",
+                                  method.weighting is Weighting.DIAGONAL)
+
+
 def _estimator_phrase(result) -> str:
     method = result.method
     if method.ordinal:
+        kind, aside = _correlation_kinds(result)
         extra = " and polyserial" if method.items is Items.MIXED else ""
         moments = (" (and the means and variances of the continuous items)"
                    if method.items is Items.MIXED and method.thresholds else "")
-        return (f"{method.weighting.label} least squares on polychoric{extra} correlations of the ordinal items{moments}, "
-                f"with robust standard errors")
+        return (f"{method.weighting.label} least squares on {kind}{extra} correlations{aside} of the ordinal "
+                f"items{moments}, with robust standard errors")
     base = "full-information maximum likelihood" if method.full_information else "maximum likelihood"
     if result.robust is not None:
         test = "Yuan-Bentler" if method.full_information else "Satorra-Bentler"
@@ -236,6 +257,16 @@ def _capital(text: str) -> str:
     return text[:1].upper() + text[1:]
 
 
+#: what pairwise present rows assume, at the end of the rows' phrase (inside parentheses: the citation after a comma)
+_PAIRWISE_ASSUMPTION = f", which assumes that {MISSING_COMPLETELY_AT_RANDOM}, Little & Rubin, 2002"
+
+
+def _pairs_with_gaps(result) -> bool:
+    """Whether some correlation of an ordinal fit came from fewer rows than were analysed (pairwise present rows)."""
+    pairs = result.data.pair_range
+    return pairs is not None and pairs[0] < result.n_obs
+
+
 def _sample_phrase(result) -> str:
     data = result.data
     text = f"N = {result.n_obs}"
@@ -250,9 +281,9 @@ def _sample_phrase(result) -> str:
         text += (f"; every answer of every row was used, including rows with missing answers (each item answered in "
                  f"at least {floor:g}% of the rows)")
     pairs = data.pair_range
-    if pairs is not None and pairs[0] < result.n_obs:
+    if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
-                 f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair")
+                 f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair{_PAIRWISE_ASSUMPTION}")
     if data.rows_dropped:
         if full_information or result.method.missing is MissingData.PAIRWISE:
             text += f"; {data.rows_dropped} of {data.rows_read} rows answered no model variable and were left out"
@@ -319,7 +350,7 @@ def methods_paragraph(result) -> str:
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
     design = getattr(result, "design", None)
     if design is not None:
-        parts.append(design.sentence(result.method.full_information, result.method.ordinal))
+        parts.append(design_sentence(result))
     inadmissible = not result.admissible
     if inadmissible:
         serious = [p for p in result.problems if p.kind.inadmissible]
@@ -420,7 +451,8 @@ def _comparison_rows(comparison) -> str:
         how = "every answer of every row was used, including rows with missing answers"
     elif comparison.missing is MissingData.PAIRWISE:
         how = ("every answer was used: each item's thresholds from the rows that answered it and each correlation "
-               "from the rows that answered both items")
+               "from the rows that answered both items" + (_PAIRWISE_ASSUMPTION if _pairs_with_gaps(comparison.results[0])
+                                                            else ""))
     else:
         how = (f"{dropped} of {n + dropped} rows with a missing answer on some model's variables were excluded listwise"
                if dropped else "")
@@ -451,7 +483,7 @@ def comparison_paragraph(comparison) -> str:
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
     design = getattr(first, "design", None)
     if design is not None:
-        parts.append(design.sentence(first.method.full_information, first.method.ordinal))
+        parts.append(design_sentence(first))
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
     parts.append(f"Fit{statistic}: " + "; ".join(f"{label[name]}, {_fit_figures(r)}" for name, r in zip(names, results)) + ".")
     for name, r in zip(names, results):
@@ -485,8 +517,9 @@ def comparison_paragraph(comparison) -> str:
             continue
         t = shown[(restricted, general)][0]
         which = f", {t.method}" if len(methods) > 1 else ""
-        sentence = (f"{pair}: {CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}{which}; "
-                    f"\u0394CFI = {signed(t.delta_cfi)}, \u0394RMSEA = {signed(t.delta_rmsea)}.")
+        sentence = (f"{pair}: {CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}{which}"
+                    + ("." if first.method.ordinal else
+                       f"; \u0394CFI = {signed(t.delta_cfi)}, \u0394RMSEA = {signed(t.delta_rmsea)}."))
         if t.boundary:
             sentence += (f" Because {label[restricted]} has {_list(list(t.boundary))}, values on the boundary of the "
                          f"parameter space of {label[general]}, the difference does not follow the usual chi-square "
@@ -499,7 +532,10 @@ def comparison_paragraph(comparison) -> str:
     for n in comparison.not_nested:
         after = " and were compared by AIC and BIC" if n.information_criteria else ""
         parts.append(f"{label[n.first]} and {label[n.second]} were not tested against each other ({n.reason}){after}.")
-    if pairs:
+    if pairs and first.method.ordinal:
+        parts.append("Changes in CFI and RMSEA were not used: each model's indices come from its own adjusted "
+                     "statistic, so their changes cannot be compared across models.")
+    elif pairs:
         parts.append("Changes in CFI and RMSEA were read against conventional guides (Cheung & Rensvold, 2002; Chen, "
                      "2007), which are conventions rather than tests.")
     return " ".join(parts)
@@ -565,7 +601,7 @@ def invariance_paragraph(result, levels) -> str:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))
     design = getattr(first, "design", None)
     if design is not None:
-        parts.append(design.sentence(first.method.full_information, first.method.ordinal))
+        parts.append(design_sentence(first))
     methods = sorted({s.versus_previous.method for s in steps[1:] if s.versus_previous is not None
                       and not s.versus_previous.not_computed}, key=_PREFERRED.index)
     rule = result.rule.description.replace("alpha", unit(result.alpha, 2)).replace(">=", "\u2265")

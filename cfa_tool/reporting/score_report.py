@@ -5,6 +5,7 @@ from __future__ import annotations
 
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.remedies import Remedy
+from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.reporting.numbers import unit
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
@@ -89,8 +90,18 @@ def quality_table(result, k: int) -> ReportTable:
 
 def correlation_table(result, k: int) -> ReportTable | None:
     q = result.quality[k]
-    if not hasattr(q, "methods") or len(q.factors) < 2:
+    if len(q.factors) < 2:
         return None
+    if not hasattr(q, "methods"):  # ordinal items: posterior means in these data
+        if q.score_correlations is None:
+            return None
+        rows = [[q.factors[j], q.factors[i], unit(q.factor_correlations[i, j]), unit(q.score_correlations[i, j])]
+                for i in range(len(q.factors)) for j in range(i)]
+        return _table(f"score_correlations_{k}", "Correlations of the scores beside the factors' correlations" + _where(q),
+                      [("Factor", "l"), ("With", "l"), ("Factors", "r"), ("Posterior means", "r")], rows,
+                      "The factors' correlations under the fitted model, then those of the posterior-mean scores of "
+                      "the rows scored on every factor. Posterior means shrink towards the mean, by more for rows "
+                      "that answered less, so their correlations differ from the factors'.")
     rows = []
     for i in range(len(q.factors)):
         for j in range(i):
@@ -109,6 +120,17 @@ def sum_table(result, k: int) -> ReportTable | None:
     if not hasattr(q, "sums") or not q.sums:
         return None
     rho = dict(zip(q.factors, q.determinacy))
+    if not hasattr(q, "methods"):  # ordinal items: the sum of the answers' codes (Green & Yang 2009)
+        rel = dict(zip(q.factors, q.reliability))
+        rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(rel[s.factor])]
+                for s in q.sums]
+        return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
+                      [("Factor", "l"), ("Items", "r"), ("Reversed for the sum", "l"), ("Sum omega", "r"),
+                       ("Score reliability", "r")], rows,
+                      "The unit-weighted sum of the answers' codes of each factor's items (reverse-keyed items "
+                      "reversed); sum omega: its reliability from the fitted thresholds, loadings and factor variance "
+                      "(Green & Yang 2009), beside the reliability of the posterior-mean scores in these data (as in "
+                      "the quality table): what the simpler score loses.")
     rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(s.validity), unit(rho[s.factor])]
             for s in q.sums]
     return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
@@ -144,11 +166,13 @@ ABOUT_THE_FIT = "About the fit (not the scored data): "
 
 def notes(result) -> list[str]:
     """The fit's notes (said to be about the fit when other data are scored), then the scores' own."""
+    # the fit's note on reading the fit indices of ordinal items: the scores' report shows none
+    warnings = [w for w in result.fit.warnings if w != ORDINAL_NOTE]
     if not result.scored_source:
-        return list(result.fit.warnings) + list(result.notes)
+        return warnings + list(result.notes)
     # the fit's advice named its own options; scoring other data takes none of them
     option = f" ({Remedy.COMPLETE_ROWS.option})"
-    return [ABOUT_THE_FIT + w.replace(option, "") for w in result.fit.warnings] + list(result.notes)
+    return [ABOUT_THE_FIT + w.replace(option, "") for w in warnings] + list(result.notes)
 
 
 def scores_report(result):

@@ -532,29 +532,43 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
 
 def reliability_table(result, group: int = 0) -> ReportTable | None:
     """How reliable are the scale scores: omega (hierarchical for a higher-order factor), omega total, alpha
-    and composite reliability, per factor."""
+    and composite reliability, per factor; for ordinal items these describe the latent responses, and the omega
+    of the answers' sum (Green & Yang 2009) stands beside them."""
     rows = result.groups[group].reliability
     if not rows:
         return None
+    ordinal = result.method.ordinal
+    columns = [("Factor", "l"), ("Items", "r"), ("Omega", "r"), ("Omega total", "r"), ("Alpha", "r"),
+               ("Composite reliability", "r")]
     body = [[r.factor, str(len(r.items)), unit(r.omega), unit(r.omega_total), unit(r.alpha),
              unit(r.composite_reliability)] for r in rows]
-    ordinal = result.method.ordinal
-    note = (("Ordinal versions, on the latent responses behind the items (alpha from the polychoric correlations). "
+    names = ["Factor", "Items", "Omega", "Omega total", "Alpha", "Composite reliability"]
+    values = [[r.factor, len(r.items), r.omega, r.omega_total, r.alpha, r.composite_reliability] for r in rows]
+    if ordinal:
+        columns = columns[:2] + [("Sum omega", "r")] + columns[2:5] + [("Composite", "r")]  # fits a terminal's width
+        body = [row[:2] + [unit(r.observed_sum_omega)] + row[2:] for row, r in zip(body, rows)]
+        names = ["Factor", "Items", "Omega of the answers' sum", "Latent-response omega", "Latent-response omega total",
+                 "Latent-response alpha", "Latent-response composite reliability"]
+        values = [row[:2] + [r.observed_sum_omega] + row[2:] for row, r in zip(values, rows)]
+    note = (("Sum omega: the share of the variance of the keyed sum of the answers' codes (the score a researcher "
+             "computes) due to the factor, from the fitted thresholds, loadings and factor variance (Green & Yang "
+             "2009); report this one for a sum score. The other columns are ordinal versions on the latent "
+             "responses behind the items, which no one observes; they usually run higher than the sum's reliability, "
+             "most with few categories. "
              if ordinal else "") + keying_sentence(rows) +
-            "Omega: share of the keyed item sum's variance due to the factor (for a higher-order factor: omega "
-            "hierarchical); omega total: due to all factors; alpha from the "
-            + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
-            "composite reliability from the standardized loadings.")
+            "Omega: share of the " + ("variance of the keyed sum of the latent responses" if ordinal else
+                                      "keyed item sum's variance") + " due "
+            "to the factor (for a higher-order factor: omega hierarchical); omega total: due to all factors; alpha "
+            "from the " + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
+            + ("composite" if ordinal else "composite reliability") + " from the standardized loadings.")
     methods = result.description.method_factors if result.description is not None else ()
     if methods:
         note += (f" Method factors ({', '.join(methods)}) stand for a way of answering, not a trait: they get no "
                  f"coefficients and take no part in the Fornell-Larcker and HTMT comparisons.")
-    return _table(f"reliability_{group}", "How reliable are the scale scores?" + (" (ordinal)" if ordinal else ""),
-                  [("Factor", "l"), ("Items", "r"), ("Omega", "r"), ("Omega total", "r"), ("Alpha", "r"),
-                   ("Composite reliability", "r")], body, _unusable(result) + note, _all_if_unusable(result, body),
-                  values=(["Factor", "Items", "Omega", "Omega total", "Alpha", "Composite reliability"],
-                          [[r.factor, len(r.items), r.omega, r.omega_total, r.alpha, r.composite_reliability]
-                           for r in rows]))
+    title = "How reliable are the scale scores?" + (" (ordinal: sum omega for the answers' sum, the others for the "
+                                                     "latent responses)" if ordinal else "")
+    return _table(f"reliability_{group}", title, columns, body, _unusable(result) + note,
+                  _all_if_unusable(result, body), values=(names, values))
 
 
 def _unusable(result) -> str:

@@ -6,10 +6,10 @@ from __future__ import annotations
 
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
-from cfa_tool.method import ADJUSTED_TEST, DifferenceMethod, FitTest, MissingData
+from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.paragraph import _parameter, comparison_paragraph, invariance_paragraph
+from cfa_tool.reporting.paragraph import _parameter, comparison_paragraph, design_sentence, invariance_paragraph
 from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit, word_list
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
@@ -123,7 +123,7 @@ def _information_criterion(value) -> str:
 def _design_lines(result) -> tuple[str, ...]:
     """The sampling design of a fit in one line (none without a design)."""
     design = getattr(result, "design", None)
-    return (design.sentence(result.method.full_information, result.method.ordinal),) if design is not None else ()
+    return (design_sentence(result),) if design is not None else ()
 
 
 BOUNDARY_CAUTION = ("values on the boundary of what the general model allows, so the chi-square difference does not "
@@ -152,6 +152,7 @@ def boundary_note(tests) -> str:
 
 def comparison_report(comparison) -> Report:
     named = list(zip(comparison.names, comparison.results))
+    ordinal = comparison.results[0].method.ordinal
     problems = _problem_lines(named)
     fitted = [(name, r) for name, r in named if r.converged and r.fit is not None]
     lowest: dict[str, list[str]] = {}
@@ -220,17 +221,21 @@ def comparison_report(comparison) -> Report:
             cautions.append(f"{restricted} against {general}: the restricted model has {'; '.join(boundary)}: "
                             f"{BOUNDARY_CAUTION}; read the p-values of this comparison as approximate (see the note "
                             f"under its table).")
+        columns = [("Test", "l"), ("Difference (df)", "r"), ("p", "r"), ("\u0394CFI", "r"), ("\u0394RMSEA", "r")]
+        value_names = ["Test", "Chi-square difference", "df difference", "p", "\u0394CFI", "\u0394RMSEA",
+                       "Not computed because", "On the boundary", "p, one parameter on the boundary"]
+        if ordinal:  # no changes in fit indices to show (ORDINAL_FIT_CHANGE, in the notes)
+            columns, rows = columns[:3], [row[:3] for row in rows]
+            value_names = value_names[:4] + value_names[6:]
+            values = [row[:4] + row[6:] for row in values]
         tables.append(_table(f"difference_tests_{k + 1}", f"{restricted} (restricted) against {general}: difference tests",
-                             [("Test", "l"), ("Difference (df)", "r"), ("p", "r"), ("\u0394CFI", "r"), ("\u0394RMSEA", "r")],
-                             rows, boundary_note(found) if boundary else None,
-                             values=(["Test", "Chi-square difference", "df difference", "p", "\u0394CFI",
-                                      "\u0394RMSEA", "Not computed because", "On the boundary",
-                                      "p, one parameter on the boundary"], values)))
+                             columns, rows, boundary_note(found) if boundary else None,
+                             values=(value_names, values)))
     for n in comparison.not_nested:
         advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
         notes.append(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
     if comparison.tests:
-        notes.append(CHANGE_GUIDES)
+        notes.append(f"{ORDINAL_FIT_CHANGE[0].upper()}{ORDINAL_FIT_CHANGE[1:]}." if ordinal else CHANGE_GUIDES)
     notes += list(comparison.notes)
     return Report(ResultKind.COMPARE, "Model comparison", _notice(problems, cautions), lines, tuple(tables),
                   tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), comparison_paragraph(comparison))

@@ -14,6 +14,9 @@ For complete answers and a linear score s = alpha + W'(x - mu) of factors F (wei
 * the correlations among each method's scores, beside the factors' correlations (Grice 2001 compares them:
   regression scores overstate them, Bartlett scores too as a rule, correlation-preserving scores keep them).
 
+Sum scores of ordinal items: the same keyed sums of the answers' codes, with the reliability of Green & Yang (2009)
+from the thresholds, loadings and factor covariances (:mod:`cfa_tool.assessment.ordinal_reliability`).
+
 Sum scores: the unit-weighted sum of the items that measure a factor (directly or through the
 factors below it), each reverse-keyed item (negative total loading) reversed (its sign flipped), with
 omega of the sum (McDonald 1999): omega = (k'G_f)^2 Phi_ff / k'Sigma k for keys k and total loadings
@@ -27,9 +30,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from cfa_tool.assessment.ordinal_reliability import observed_sum_omega
 from cfa_tool.numerics.plain import clean
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
-from cfa_tool.scoring.model import ScoringModel, checked_covariance
+from cfa_tool.scoring.model import OrdinalScoringModel, ScoringModel, checked_covariance
 from cfa_tool.scoring.weights import pattern_weights
 
 
@@ -161,6 +165,28 @@ def sum_quality(model: ScoringModel) -> tuple[SumScore, ...]:
         items = tuple(model.items[i] for i in np.flatnonzero(k))
         reversed_items = tuple(model.items[i] for i in np.flatnonzero(k < 0))
         out.append(SumScore(name, items, reversed_items, omega, validity))
+    return tuple(out)
+
+
+def ordinal_sum_quality(model: OrdinalScoringModel) -> tuple[SumScore, ...]:
+    """Each factor's keyed sum of ordinal answers with its reliability (Green & Yang 2009); sums that would take in
+    a continuous item beside the ordinal ones are left out (their codes are not answers to a threshold model).
+    Validity (the sum's correlation with its factor) is not computed for them (NaN)."""
+    base = model.base
+    sigma = checked_covariance(base)
+    keys = sum_keys(base)
+    G, phi = base.total_loadings, base.factor_covariance
+    mean = base.intercepts + G @ base.factor_means
+    out = []
+    for f, name in enumerate(base.factors):
+        idx = np.flatnonzero(keys[:, f])
+        if not len(idx) or any(not len(model.thresholds[i]) for i in idx):
+            continue
+        g = G[idx, f]
+        omega = observed_sum_omega([model.thresholds[i] for i in idx], [np.diff(model.categories[i]) for i in idx],
+                                   mean[idx], sigma[np.ix_(idx, idx)], np.outer(g, g) * phi[f, f], keys[idx, f])
+        out.append(SumScore(name, tuple(base.items[i] for i in idx),
+                            tuple(base.items[i] for i in idx if keys[i, f] < 0), omega, float("nan")))
     return tuple(out)
 
 

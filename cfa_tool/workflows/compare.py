@@ -22,7 +22,7 @@ from cfa_tool.errors import OptionError, estimation_of
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import fit_moments, full_information_likelihood, model_structure, ordered_moments
 from cfa_tool.language.spec import Spec, with_ordinal_levels
-from cfa_tool.method import FitTest, MissingData
+from cfa_tool.method import ORDINAL_FIT_CHANGE, FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.workflows.nesting import (DifferenceTest, boundary_of, difference_test, is_nested,
                                        scaled_difference_tests, scaling_at_restricted)
@@ -70,6 +70,8 @@ class Comparison(Presentable):
                 for name, r in zip(self.names, self.results)
             ],
             "tests": [t.to_dict() for t in self.tests],
+            # ordinal fits: the tests' delta_cfi and delta_rmsea are null, and why
+            "fit_index_changes_left_out": ORDINAL_FIT_CHANGE if self.results[0].method.ordinal else None,
             "design": self.results[0].design.to_dict() if self.results[0].design is not None else None,
             "not_nested": [dict(first=n.first, second=n.second, reason=n.reason,
                                 information_criteria_comparable=n.information_criteria) for n in self.not_nested],

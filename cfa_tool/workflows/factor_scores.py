@@ -24,7 +24,7 @@ from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
-from cfa_tool.scoring.quality import ScoreQuality
+from cfa_tool.scoring.quality import ScoreQuality, ordinal_sum_quality
 
 
 class RowLeftOut(Enum):
@@ -108,6 +108,9 @@ class OrdinalQuality:
     group: str | None
     factors: tuple[str, ...]
     reliability: tuple[float, ...]
+    factor_correlations: np.ndarray | None = None  # (m, m), of the fitted model
+    score_correlations: np.ndarray | None = None  # (m, m), of the posterior means of the rows scored on every factor
+    sums: tuple = ()  # SumScore per factor: the keyed sum of the answers' codes (Green & Yang 2009 reliability)
 
     @property
     def determinacy(self) -> tuple[float, ...]:
@@ -120,7 +123,11 @@ class OrdinalQuality:
     def to_dict(self) -> dict:
         return clean({"group": self.group, "factors": list(self.factors), "determinacy": list(self.determinacy),
                       "reliability": list(self.reliability), "low_determinacy": list(self.low_determinacy),
-                      "determinacy_caution": DETERMINACY_CAUTION})
+                      "determinacy_caution": DETERMINACY_CAUTION,
+                      "factor_correlations": None if self.factor_correlations is None else
+                      self.factor_correlations.tolist(),
+                      "score_correlations": None if self.score_correlations is None else self.score_correlations.tolist(),
+                      "sums": [{k: v for k, v in s.to_dict().items() if k != "validity"} for s in self.sums]})
 
 
 @dataclass(frozen=True, eq=False)
@@ -755,7 +762,12 @@ def _ordinal_quality(models, labels, values, errors, position, kept, group_of_ro
             s, sd = v[ok[:, f], f], e[ok[:, f], f]
             between = float(np.var(s)) if len(s) > 1 else float("nan")
             reliability.append(between / (between + float(np.mean(sd**2))) if len(s) > 1 else float("nan"))
-        out.append(OrdinalQuality(label, model_g.base.factors, tuple(reliability)))
+        every = ok.all(axis=1)
+        scores = np.corrcoef(v[every].T).reshape(v.shape[1], v.shape[1]) if every.sum() > 2 else None
+        phi = model_g.base.factor_covariance
+        sd = np.sqrt(np.diag(phi))
+        out.append(OrdinalQuality(label, model_g.base.factors, tuple(reliability), phi / np.outer(sd, sd), scores,
+                                  ordinal_sum_quality(model_g)))
     return out
 
 

@@ -36,6 +36,13 @@ def test_spss_file_with_value_labels_and_user_missing_codes(tmp_path, hs_items):
     rated = cfa_tool.fit("factor f: x1, x2, rating\n", path)
     assert rated.converged
     assert rated.labels["values"]["rating"][5.0] == "strongly agree"
+    # an ordinal fit of the same file carries the same labels, one way for both (new-user trial)
+    ordinal = cfa_tool.fit("factor f: x1, x2, rating\n", path, ordinal="rating")
+    assert ordinal.method.ordinal and ordinal.labels == rated.labels
+    assert ordinal.to_dict()["labels"]["values"]["rating"]["5.0"] == "strongly agree"
+    from cfa_tool.reporting.reports import report_of
+
+    assert any(t.key == "value_labels" for t in report_of(ordinal).tables)
 
 
 def test_a_row_filter_by_a_value_label_of_an_spss_file(tmp_path, hs_items):

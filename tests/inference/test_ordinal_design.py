@@ -199,6 +199,34 @@ def test_the_report_states_the_design_and_warns_of_few_clusters(survey):
     assert "weighted thresholds and polychoric correlations" in text and "10 clusters defined by unit" in text
 
 
+def test_the_methods_paragraph_says_what_the_design_based_ordinal_fit_did(survey):
+    """What inference/design.design_meat and data/sample_design.row_design do, in the paragraph's words: the
+    least-squares weights and the standard errors from the design-based covariance of the influence functions,
+    cluster sums centred within strata with C_h/(C_h - 1), sampling weights rescaled within each group;
+    tetrachoric correlations between two-category items."""
+    binary = survey.assign(**{x: (survey[x] > 2).astype(float) + 1 for x in ITEMS})
+    text = methods_paragraph(cfa_tool.fit(ONE_FACTOR, binary, ordinal="all", weights="w", cluster="unit",
+                                          strata="stratum"))
+    assert "least squares on tetrachoric correlations of the ordinal items" in text
+    assert "weighted thresholds and tetrachoric correlations" in text and "polychoric" not in text
+    assert "The least-squares weights come from the design-based covariance of the thresholds and correlations" in text
+    assert "influence functions" in text and "score contributions" not in text
+    assert "clusters' weighted sums centred within each stratum" in text and "C_h/(C_h - 1)" in text
+    mixed = survey.assign(a=(survey["a"] > 2).astype(float) + 1)
+    unweighted = cfa_tool.fit(ONE_FACTOR, mixed, ordinal="all", ordinal_estimator="unweighted", weights="w",
+                              cluster="unit")
+    text = methods_paragraph(unweighted)
+    assert "polychoric correlations (tetrachoric between items with two categories)" in text
+    assert "least-squares weights" not in text and "times C/(C - 1) for C clusters" in text
+    halves = survey.assign(half=np.where(survey["unit"] < 30, "first", "second"))
+    grouped = cfa_tool.fit(ONE_FACTOR, halves, ordinal="all", group="half", weights="w", cluster="unit")
+    rows = halves["half"].value_counts().sort_index().tolist()  # pandas: the rows of each group
+    assert grouped.design.group_rows == tuple(rows)
+    assert f"rescaled within each group to sum to its rows ({rows[0]}, {rows[1]})" in methods_paragraph(grouped)
+    continuous = methods_paragraph(cfa_tool.fit(ONE_FACTOR, survey, weights="w", cluster="unit", strata="stratum"))
+    assert "rows' score contributions over the clusters' weighted sums centred within each stratum" in continuous
+
+
 def test_compare_and_invariance_honour_the_design(survey):
     from cfa_tool.workflows.compare import compare
     from cfa_tool.workflows.invariance import invariance

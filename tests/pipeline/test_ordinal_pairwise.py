@@ -169,3 +169,29 @@ def test_pairs_the_gaps_leave_empty_are_one_line_errors():
     mixed = apart.drop(columns="y2").assign(x=np.where(np.arange(200) < 100, np.arange(200) / 10, 1.0))
     with pytest.raises(DataError, match="'x' has the same value in every row that also answered 'y1'"):
         cfa_tool.fit("factor f: y1, y3, y4, y5, y6, x\n", mixed, ordinal=["y1", "y3", "y4", "y5", "y6"])
+
+
+def test_the_note_and_the_methods_paragraphs_state_the_missing_data_assumption():
+    """Pairwise present rows are consistent when answers are missing completely at random (Little & Rubin 2002):
+    the fit's note, its methods paragraph and compare's paragraph say so; without gaps nothing is said."""
+    from cfa_tool.reporting.paragraph import comparison_paragraph, methods_paragraph
+
+    data = _sample(400, 7, share=0.1)
+    result = cfa_tool.fit(ONE_FACTOR, data, ordinal="all")
+    note = next(w for w in result.warnings if "pairwise present rows" in w)
+    assert "missing completely at random (whether an answer is missing" in note
+    assert "valid when answers are missing at random" in note
+    paragraph = methods_paragraph(result)
+    assert "rows per pair, which assumes that answers are missing completely at random, Little & Rubin, 2002)" in paragraph
+    two = "factor f: y1..y3\nfactor g: y4..y6\n"
+    compared = cfa_tool.compare([ONE_FACTOR, two], data, ordinal="all")
+    assert "both items, which assumes that answers are missing completely at random" in comparison_paragraph(compared)
+    from cfa_tool.reporting.reports import report_of
+
+    halves = pd.concat([data.assign(site="east"), _sample(400, 8, share=0.1).assign(site="west")])
+    ladder = cfa_tool.invariance(ONE_FACTOR, halves, "site", ordinal="all")
+    assert "which assumes that answers are missing completely at random" in report_of(ladder).paragraph
+    complete = _sample(400, 7, share=0.0)
+    assert "completely at random" not in methods_paragraph(cfa_tool.fit(ONE_FACTOR, complete, ordinal="all"))
+    assert "completely at random" not in comparison_paragraph(cfa_tool.compare([ONE_FACTOR, two], complete,
+                                                                                 ordinal="all"))

@@ -83,3 +83,23 @@ def test_ordinal_comparisons_name_the_adjusted_difference(data):
     assert f"the {ADJUSTED_TEST} chi-square difference test (Satorra, 2000; Asparouhov & Muthen, 2006)" in text
     assert "reproduces the restricted model's implied thresholds and correlations" in text
     assert f"Fit (the {ADJUSTED_TEST} (Asparouhov & Muthen 2010) statistic and robust indices)" in text
+    # changes in the adjusted indices are not comparable across models (as invariance refuses to judge steps by them):
+    # no figures and no guide sentence, the reason in their place, in the paragraph, the report and the JSON
+    assert "\u0394CFI" not in text and "Cheung & Rensvold" not in text
+    assert "Changes in CFI and RMSEA were not used" in text
+
+
+def test_ordinal_comparisons_leave_out_the_changes_in_fit_indices(data):
+    from cfa_tool.reporting.reports import report_of
+
+    cut = data.apply(lambda column: pd.cut(column, [-np.inf, -0.5, 0.5, np.inf], labels=False) + 1)
+    comparison = compare([ONE, TWO], cut, ordinal="all")
+    report = report_of(comparison)
+    tests = [t for t in report.tables if t.key.startswith("difference_tests")]
+    assert tests and all("\u0394CFI" not in t.columns for t in tests)
+    assert any("their changes between models cannot be compared" in note for note in report.notes)
+    assert not any("Cheung & Rensvold 2002" in note for note in report.notes)
+    out = comparison.to_dict()
+    assert all(t["delta_cfi"] is None and t["delta_rmsea"] is None for t in out["tests"])
+    assert "cannot be compared" in out["fit_index_changes_left_out"]
+    assert compare([ONE, TWO], data).to_dict()["fit_index_changes_left_out"] is None

@@ -123,3 +123,27 @@ def test_a_json_of_another_model_or_altered_is_refused(tmp_path):
     altered.write_text(json.dumps(payload))
     with pytest.raises(OptionError, match="the fit result is not of the model"):
         score_with_saved_fit(model_file, altered, _draw(20, 8))
+
+
+def test_the_ordinal_scores_report_gives_score_correlations_and_the_sum_with_its_reliability(tmp_path):
+    """What README promises for scores, with ordinal items too: the posterior means' correlations beside the factors'
+    (numpy's corrcoef of the written scores) and each factor's keyed sum of answers with its reliability, the fit's
+    own observed-sum omega (Green & Yang 2009; checked in tests/assessment/test_ordinal_reliability.py); no note
+    about fit indices the report does not show."""
+    from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
+    from cfa_tool.reporting.reports import report_of
+
+    data = _draw(600, 5)
+    model = "factor f1: q1, q2\nfactor f2: q3, q4\nordinal q1..q4\n"
+    result = scores(model, data)
+    q = result.quality[0]
+    written = result.table[["f1_posterior_mean", "f2_posterior_mean"]].dropna().to_numpy()
+    assert q.score_correlations[0, 1] == pytest.approx(np.corrcoef(written.T)[0, 1], abs=1e-12)
+    fitted = {r.factor: r.observed_sum_omega for r in result.fit.groups[0].reliability}
+    assert {s.factor: s.omega for s in q.sums} == pytest.approx(fitted, abs=1e-10)
+    report = report_of(result)
+    keys = [t.key for t in report.tables]
+    assert "score_correlations_0" in keys and "score_sums_0" in keys
+    assert ORDINAL_NOTE in result.fit.warnings and ORDINAL_NOTE not in report.notes
+    out = result.to_dict()["quality"][0]
+    assert len(out["sums"]) == 2 and "validity" not in out["sums"][0]

@@ -1,0 +1,80 @@
+"""Reliability of the observed sum of ordinal items (Green & Yang 2009).
+
+The omega of an ordinal fit's reliability table describes the sum of the latent responses behind the items, which
+no one can compute.  The score a researcher uses is the sum of the answers' codes, X = sum_i k_i x_i (k_i = -1 for a
+reversed item).  Its reliability, the share of Var(X) due to the factor f, is the nonlinear SEM reliability of
+Green & Yang (2009, eq. 21), from the fitted thresholds, loadings and factor variance.  With answer i coded v_i0 <
+v_i1 < ... and d_ic = v_ic - v_i,c-1 the steps between consecutive codes, x_i = v_i0 + sum_c d_ic [y*_i > tau_ic],
+so that
+
+    Cov(x_i, x_j)            = sum_c sum_c' d_ic d_jc' (Phi2(t_ic, t_jc'; rho_ij)   - Phi(t_ic) Phi(t_jc')),
+    Cov(E[x_i|f], E[x_j|f])  = sum_c sum_c' d_ic d_jc' (Phi2(t_ic, t_jc'; rho*_ij)  - Phi(t_ic) Phi(t_jc')),
+
+where t_ic = (tau_ic - mu_i) / sigma_i are the thresholds standardized by the latent response's implied mean and
+standard deviation, rho_ij = Sigma_ij / (sigma_i sigma_j) its implied correlation (1 for i = j) and
+rho*_ij = G_if G_jf Phi_ff / (sigma_i sigma_j) the part of it due to f (Green & Yang 2009, eqs. 19-21; the second
+line holds because two answers given f are independent, and P(y*_i > a, y*_j > b) - P(y*_i > a) P(y*_j > b) is the
+same with lower tails).  The coefficient is the keyed sum of the second line over the keyed sum of the first, both
+from the model (not from the sample's answers), so that it describes the fitted model's observed sum.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+from typing import Sequence
+
+import numpy as np
+from scipy import special
+
+from cfa_tool.assessment.reliability import FactorReliability
+from cfa_tool.model.implied import ModelMatrices
+from cfa_tool.numerics.bivariate import bivariate_cdf
+
+
+def observed_sum_omega(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndarray], mean: np.ndarray,
+                       sigma: np.ndarray, common: np.ndarray, keys: np.ndarray) -> float:
+    """Green & Yang's (2009) reliability of the keyed sum of ordinal answers (module docstring).
+
+    For the items of one factor: ``thresholds[i]`` item i's thresholds on its latent response's scale, ``steps[i]``
+    the differences of its consecutive answer codes (one per threshold), ``mean`` and ``sigma`` the latent
+    responses' implied means and covariance matrix, ``common`` the covariance due to the factor
+    (G_if G_jf Phi_ff) and ``keys`` +1 or -1 per item."""
+    sd = np.sqrt(np.diag(sigma))
+    item = np.concatenate([np.full(len(t), i) for i, t in enumerate(thresholds)])
+    t = np.concatenate([(np.asarray(t, float) - mean[i]) / sd[i] for i, t in enumerate(thresholds)])
+    d = np.concatenate([np.asarray(s, float) for s in steps]) * np.asarray(keys, float)[item]
+    rho = (sigma / np.outer(sd, sd))[np.ix_(item, item)]
+    rho_common = (common / np.outer(sd, sd))[np.ix_(item, item)]
+    h, k = np.meshgrid(t, t, indexing="ij")
+    margins = np.outer(special.ndtr(t), special.ndtr(t))
+    joint = bivariate_cdf(h, k, rho)
+    same = item[:, None] == item[None, :]
+    joint[same] = special.ndtr(np.minimum(h, k))[same]  # one latent response with itself: correlation 1 exactly
+    total = float(d @ (joint - margins) @ d)
+    due = float(d @ (bivariate_cdf(h, k, rho_common) - margins) @ d)
+    return due / total if total > 0 else float("nan")
+
+
+def with_observed_sum_omega(factors: Sequence[FactorReliability], mats: ModelMatrices, observed: tuple[str, ...],
+                            latent: tuple[str, ...], thresholds: dict[str, np.ndarray], codes: dict[str, np.ndarray],
+                            mean: np.ndarray | None = None) -> tuple[FactorReliability, ...]:
+    """``factors`` with the observed-sum omega of each first-order factor whose items are all ordinal
+    (``thresholds`` and answer ``codes`` by item; continuous items beside them have neither); ``mean``: the latent
+    responses' implied means (0 when None, as in one group)."""
+    sigma = mats.implied_covariance()
+    phi = mats.latent_covariance()
+    G = mats.G
+    mean = np.zeros(len(observed)) if mean is None else np.asarray(mean, float)
+    out = []
+    for r in factors:
+        if r.level != "first-order" or not all(x in thresholds for x in r.items):
+            out.append(r)
+            continue
+        f = latent.index(r.factor)
+        idx = [observed.index(x) for x in r.items]
+        loadings = G[idx, f]
+        value = observed_sum_omega([thresholds[x] for x in r.items], [np.diff(codes[x]) for x in r.items], mean[idx],
+                                   sigma[np.ix_(idx, idx)], np.outer(loadings, loadings) * phi[f, f],
+                                   np.array([-1.0 if x in r.reversed else 1.0 for x in r.items]))
+        out.append(replace(r, observed_sum_omega=value))
+    return tuple(out)
