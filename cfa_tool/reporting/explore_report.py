@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from cfa_tool.exploration.choices import FitStatistic
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.numbers import num, unit
@@ -50,7 +51,8 @@ def count_table(result) -> ReportTable:
                   [("Rule", "l"), ("Factors", "r"), ("Part of the recommendation", "l")], rows,
                   f"Parallel analysis: {count.parallel.replications} {count.parallel.reference.phrase}, "
                   f"{count.parallel.percentile:g}th percentile (Glorfeld 1995). An empty cell: the rule found no "
-                  f"count among the solutions tried.")
+                  f"count among the solutions tried" + (", or, for the lowest BIC, BIC is not defined for polychoric "
+                                                        "correlations." if _scaled(result) else "."))
 
 
 def eigenvalue_table(result) -> ReportTable:
@@ -65,17 +67,30 @@ def eigenvalue_table(result) -> ReportTable:
                   "correlations on the diagonal). A factor counts while its eigenvalue exceeds the random one.")
 
 
+def _scaled(result) -> bool:
+    """The solutions' chi-square is mean-scaled (polychoric correlations): Satorra & Bentler (1994)."""
+    return any(step.solution.fit.statistic is FitStatistic.MEAN_SCALED for step in result.fits)
+
+
+#: what the fit table of polychoric solutions shows, and why it has no BIC
+SCALED_NOTE = ("Chi-square and RMSEA of polychoric correlations: the statistic is mean-scaled (Satorra & Bentler 1994), "
+               "and BIC is not given, as the solutions are not fitted by the likelihood of the answers.")
+
+
 def fits_table(result) -> ReportTable:
     rows = []
+    scaled = _scaled(result)
     for step in result.fits:
         f = step.solution.fit
         low, high = f.rmsea_ci90
         test = "no test" if f.df == 0 else f"{f.chi_square:.3f} on {f.df} df, p {T.p_phrase(f.p_value)}"
         rows.append([str(step.factors), test, "" if f.df == 0 else f"{unit(f.rmsea)} [{unit(low)}, {unit(high)}]",
-                     num(f.bic, 1), unit(f.srmr), "Heywood case" if step.improper else ""])
+                     *([] if scaled else [num(f.bic, 1)]), unit(f.srmr), "Heywood case" if step.improper else ""])
     return _table("solution_fits", "Fit of maximum-likelihood solutions with 1 to K + 2 factors",
-                  [("Factors", "r"), ("Chi-square", "r"), ("RMSEA [90% interval]", "r"), ("BIC", "r"), ("SRMR", "r"),
-                   ("Problem", "l")], rows, GUIDE_NOTE,
+                  [("Factors", "r"), ("Scaled chi-square" if scaled else "Chi-square", "r"),
+                   ("RMSEA [90% interval]", "r"), *([] if scaled else [("BIC", "r")]), ("SRMR", "r"),
+                   ("Problem", "l")], rows,
+                  f"{SCALED_NOTE} {GUIDE_NOTE}" if scaled else GUIDE_NOTE,
                   flagged=tuple(i for i, s in enumerate(result.fits) if s.improper))
 
 
@@ -145,8 +160,9 @@ def solution_line(result) -> str:
     rotation = ("" if r.spec.method.value == "none" or ex.factors == 1 else
                 f" Rotation {'converged' if r.converged else 'DID NOT CONVERGE'}; {r.starts_at_best} of {r.starts} "
                 f"starts reached the lowest criterion value.")
+    scaled = "scaled chi-square (Satorra & Bentler 1994)" if f.statistic is FitStatistic.MEAN_SCALED else "chi-square"
     test = "no test (0 df)" if f.df == 0 or f.statistic is None else \
-        f"chi-square {f.chi_square:.3f} on {f.df} df, p {T.p_phrase(f.p_value)}, RMSEA {unit(f.rmsea)}"
+        f"{scaled} {f.chi_square:.3f} on {f.df} df, p {T.p_phrase(f.p_value)}, RMSEA {unit(f.rmsea)}"
     return f"The {ex.factors}-factor solution: {test}, SRMR {unit(f.srmr)}.{rotation}"
 
 

@@ -224,3 +224,20 @@ def test_a_target_file_names_the_factors(hs_data, tmp_path):
     clash.write_text("item,x2,visual,verbal\nx1,0,,0\nx4,0,0,\nx7,,0,0\n")
     with pytest.raises(OptionError, match="the factor name 'x2' is also an item's name"):
         cfa_tool.explore(hs_data, items=ITEMS, rotation="target", target=clash)
+
+
+def test_an_ordinal_exploration_names_its_scaled_statistic_and_shows_no_bic(hs_data):
+    # new-user trial: the mean-scaled statistic of polychoric solutions was labelled a plain chi-square, and the
+    # empty BIC cells were explained as "the rule found no count"
+    import cfa_tool
+
+    cut = hs_data[ITEMS].apply(lambda column: pd.qcut(column, 4, labels=False) + 1)
+    result = cfa_tool.explore(cut, ordinal="all", replications=20)
+    text = " ".join(result.summary().split())
+    assert "Scaled chi-square" in text and "scaled chi-square (Satorra & Bentler 1994)" in text
+    assert "BIC is not given, as the solutions are not fitted by the likelihood of the answers" in text
+    from cfa_tool.reporting.explore_report import fits_table
+
+    assert "BIC" not in fits_table(result).columns
+    continuous = fits_table(cfa_tool.explore(hs_data[ITEMS], replications=20))
+    assert "BIC" in continuous.columns and "Chi-square" in continuous.columns
