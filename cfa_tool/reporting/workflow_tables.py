@@ -452,7 +452,8 @@ def invariance_report(result) -> Report:
 
     return Report(ResultKind.INVARIANCE, f"Measurement invariance across {result.group_column} ({', '.join(result.groups)})",
                   notice, lines, tuple(tables), tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE),
-                  invariance_paragraph(result, ORDINAL_LEVELS if ordinal else LEVELS))
+                  invariance_paragraph(result, ORDINAL_LEVELS if ordinal else LEVELS),
+                  warnings=tuple(getattr(result, "notes", ())))
 
 
 # ---------------------------------------------------------------- replicate

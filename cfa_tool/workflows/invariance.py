@@ -196,10 +196,13 @@ class InvarianceResult(Presentable):
     latent_differences: tuple[LatentDifference, ...] = ()
     latent_note: str = ""  # which model the latent differences come from, or why there are none
     means_not_estimated: tuple[str, ...] = ()  # higher-order factors whose means stay fixed at 0 in every group
+    #: what reading the data did (rows left out, labels read, missing-data handling): notes, not cautions
+    notes: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         return {
             "warnings": list(self.warnings),
+            "notes": list(self.notes),
             "group_column": self.group_column,
             "groups": list(self.groups),
             "alpha": self.alpha,
@@ -304,8 +307,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 steps.append(InvarianceStep(level, result, None, False, ()))
                 stopped = (f"the {level} model did not converge{reason}; the ladder stops there"
                            + (", and the partial search could not run at this step" if partial != "none" else ""))
-                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
-                                        data_cautions + (stopped,) + tuple(notes), rule)
+                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + (stopped,),
+                                        rule, notes=tuple(notes))
             with threads:
                 test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
             # an inadmissible solution (negative variances, ...) cannot show that invariance holds, whatever its fit;
@@ -344,7 +347,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                     tuple(r for r in spec.noninvariant if _exempts_a_class_of(r, classes))))
         previous = (est, result)
         start = est.theta
-    warnings = list(notes)
+    warnings = []
     if not steps[0].holds and steps[0].result.admissible:
         fit = _fit_values(steps[0].result)
         warnings.insert(0, "the configural model does not fit by the guide values (" + ", ".join(
@@ -374,7 +377,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                            + "): its fit and its difference test cannot show that invariance holds")
     differences, latent_note, not_estimated = latent_differences(steps)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + tuple(warnings), rule,
-                            differences, latent_note, not_estimated)
+                            differences, latent_note, not_estimated, tuple(notes))
 
 
 def _step_holds(rule: DecisionRule, test: DifferenceTest, alpha: float, result: FitResult, general: FitResult,
