@@ -4,6 +4,8 @@ every writer draws.  Problems of a solution come first; the cautions come last."
 
 from __future__ import annotations
 
+import math
+
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
@@ -599,8 +601,26 @@ def bootstrap_report(boot) -> Report:
                    + f". {kinds[0].upper()}{kinds[1:]} from the converged resamples.",
                    values=(["Kind", "Variables", "Scale", "Estimate", "Bootstrap SE", "Percentile lower",
                             "Percentile upper", *([] if ordinal else ["BCa lower", "BCa upper"])], values))
+    few = few_draws(boot.converged, 0.025, "converged resamples", "the interval ends" + (
+        " and the Bollen-Stine p-value" if boot.bollen_stine_p is not None else ""))
     return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines), (table,),
-                  tuple(result.warnings), (HIGH_STAKES_NOTE,))
+                  tuple(result.warnings), (HIGH_STAKES_NOTE,), warnings=(few,) if few else ())
+
+
+#: fewer draws than this beyond a percentile make it move with the seed (a rule of thumb of this program)
+TAIL_DRAWS = 10
+
+
+def few_draws(draws: int, tail: float, what: str, moves: str) -> str:
+    """A caution when the ``draws`` leave fewer than TAIL_DRAWS beyond a percentile that cuts off ``tail``: the
+    interval ends or cutoffs then rest on a handful of draws and change with the seed (common practice asks for
+    1,000 or more resamples for bootstrap intervals; Efron & Tibshirani 1993, recalled)."""
+    beyond = draws * tail
+    if beyond >= TAIL_DRAWS:
+        return ""
+    return (f"Only {draws} {what}: each {100 * tail:g}% tail holds about {beyond:.1f} of them, so {moves} move with the "
+            f"seed; give {math.ceil(TAIL_DRAWS / tail):,} or more (common practice asks for 1,000 or more resamples for "
+            f"bootstrap intervals)")
 
 
 # ---------------------------------------------------------------- cutoffs
@@ -648,9 +668,11 @@ def cutoffs_report(cut) -> Report:
         if cut.correct_rejected is not None:
             lines += (f"That test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
                       f"{cut.converged_correct} samples drawn from it (nominal 5%).",)
+    few = few_draws(cut.replications, 0.05, "samples", "the cutoffs")
     return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", _fit_notice(result), lines,
                   (table,), tuple(notes) + tuple(result.warnings), ("These cutoffs hold for this model, sample size and kind of misspecification "
-                                           "only; they are guides, not laws.", HIGH_STAKES_NOTE))
+                                           "only; they are guides, not laws.", HIGH_STAKES_NOTE),
+                  warnings=(few,) if few else ())
 
 
 # ---------------------------------------------------------------- power

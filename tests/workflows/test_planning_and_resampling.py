@@ -351,3 +351,18 @@ def test_the_power_report_says_what_the_plan_assumes_and_what_ordinal_items_chan
     model.write_text("factor f: a, b, c, d\n")
     said = " ".join(run("power", str(model), "--n", "300").stdout.split())
     assert " ".join(POWER_ASSUMES.split()) in said and "declares ordinal items" not in said
+
+
+def test_too_few_resamples_or_samples_bring_a_caution(hs_data):
+    # hostile trial: 10 resamples gave 95% intervals and a Bollen-Stine p without a word; each 2.5% tail of 10
+    # draws holds a quarter of one
+    from cfa_tool.reporting.workflow_tables import bootstrap_report, cutoffs_report, few_draws
+
+    assert few_draws(400, 0.025, "resamples", "x") == "" and few_draws(200, 0.05, "samples", "x") == ""
+    boot = cfa_tool.bootstrap(THREE_FACTORS, hs_data, replications=20, workers=1)
+    (caution,) = bootstrap_report(boot).warnings
+    assert caution.startswith("Only 20 converged resamples: each 2.5% tail holds about 0.5 of them, so the interval "
+                              "ends and the Bollen-Stine p-value move with the seed; give 400 or more")
+    cut = cfa_tool.cutoffs(THREE_FACTORS, hs_data, replications=50, workers=1)
+    assert cutoffs_report(cut).warnings[0].startswith("Only 50 samples: each 5% tail holds about 2.5 of them, so the "
+                                                      "cutoffs move with the seed; give 200 or more")
