@@ -5,7 +5,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.labels import label_text
+from cfa_tool.data.labels import code_order, label_text, ordered_labels
 from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, sample_moments
 from cfa_tool.errors import DataError, OptionError, printable
@@ -23,7 +23,7 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
         hint = f"; did you mean '{guess[0]}'?" if guess else ""
         raise OptionError(f"{source}: there is no group column '{printable(column)}'{hint}")
     values = frame[column].dropna()
-    labels = sorted({_label(v) for v in values})
+    labels = ordered_labels({_label(v) for v in values}, frame, column)
     if len(labels) > MAX_GROUPS:
         raise OptionError(f"{source}: the group column '{printable(column)}' has {len(labels):,} different values; a "
                           f"multi-group fit estimates the model in each group, at most {MAX_GROUPS} of them (is it the "
@@ -33,6 +33,8 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
         raise DataError(f"{source}: the group column '{column}' has only {len(labels)} group{only}; a multi-group analysis needs at least two")
     if reference is not None:
         reference = label_text(reference) if isinstance(reference, str) else reference  # read as the labels are
+        if reference not in labels:  # a labelled column's group may be given by its code, as row filters take it
+            reference = code_order(frame, column).get(label_text(reference), reference)
         if reference not in labels:
             raise OptionError(f"{source}: '{reference}' is not a group of column '{column}' (groups: {', '.join(labels)})")
         labels.remove(reference)

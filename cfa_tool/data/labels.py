@@ -89,3 +89,31 @@ def own_labels(column: str, value_labels: dict) -> bool:
     scale's labels ('Strongly disagree' ... 'Strongly agree'), a code column's labels (departments) are its own."""
     labels = value_labels.get(column)
     return bool(labels) and not any(other != column and theirs == labels for other, theirs in value_labels.items())
+
+
+#: the key of DataFrame.attrs that keeps, for each column read as its value labels, each code (as text) and its
+#: label, in the order of the codes: groups are ordered and named by code as the file orders them
+CODED_LABELS = "coded_labels"
+
+
+def code_order(frame, column: str) -> dict[str, str]:
+    """{code as text: label} of a column read as its value labels, in code order ({} for other columns)."""
+    return frame.attrs.get(CODED_LABELS, {}).get(column, {})
+
+
+def ordered_labels(labels, frame, column: str) -> list[str]:
+    """Group labels in a reader's order: a labelled column's by its codes; numbers by value; other text sorted."""
+    labels = set(labels)
+    coded = [label for label in code_order(frame, column).values() if label in labels]
+    rest = labels - set(coded)
+
+    def number(text: str):
+        try:
+            return float(text)
+        except ValueError:
+            return None
+
+    if rest and all(number(x) is not None for x in rest):
+        return coded + sorted(rest, key=number)
+    return coded + sorted(rest)
+

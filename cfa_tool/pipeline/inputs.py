@@ -12,7 +12,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.groups import split_moments
-from cfa_tool.data.labels import label_notes, labelled_codes
+from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.matching import check_columns, check_declared_ranges
 from cfa_tool.data.moments import SampleMoments, item_columns, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.odd_values import odd_values
@@ -172,10 +172,18 @@ def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> tuple[pd
     if not labelled:
         return frame, []
     frame = frame.copy()
+    coded = dict(frame.attrs.get(CODED_LABELS, {}))
     for column in labelled:
         labels = value_labels[column]
         frame[column] = frame[column].map(lambda v: labels.get(v, v) if pd.notna(v) else v)
+        coded[column] = {label_text(code): label_text(labels[code]) for code in sorted(labels, key=_code_key)}
+    frame.attrs[CODED_LABELS] = coded  # groups keep the file's order of codes and can be named by code
     return frame, labelled
+
+
+def _code_key(code) -> tuple:
+    """Codes in their order: numbers by value, then text."""
+    return (0, float(code), "") if isinstance(code, (int, float)) else (1, 0.0, str(code))
 
 
 def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None = None,

@@ -66,6 +66,18 @@ def test_a_row_filter_by_a_value_label_of_an_spss_file(tmp_path, hs_items):
     assert grouped.fit.chi_square == pytest.approx(cfa_tool.fit(THREE_FACTORS, same, group="school",
                                                                 reference_group="Pasteur").fit.chi_square, rel=1e-6)
     assert any("the codes of 'school' are read as their value labels" in w for w in grouped.warnings)
+    # groups keep the file's order of codes, and the reference group can be given by its code as filters take it
+    # (new-user trial: labels sorted as text made the later wave the reference)
+    path2 = tmp_path / "hs_codes_reversed.sav"
+    pyreadstat.write_sav(data, str(path2), variable_value_labels={"school": {1: "West", 2: "East"}})
+    assert [g.label for g in cfa_tool.fit(THREE_FACTORS, path2, group="school").groups] == ["West", "East"]
+    by_code = cfa_tool.fit(THREE_FACTORS, path2, group="school", reference_group="2")
+    assert [g.label for g in by_code.groups] == ["East", "West"]
+
+
+def test_numeric_group_labels_are_ordered_by_value(hs_items):
+    data = hs_items[ITEMS].assign(site=np.where(np.arange(len(hs_items)) % 3 == 0, 10, 2))
+    assert [g.label for g in cfa_tool.fit(THREE_FACTORS, data, group="site").groups] == ["2", "10"]
 
 
 def test_explore_leaves_out_a_labelled_code_column_as_fit_reads_it_as_labels(tmp_path, hs_items):
