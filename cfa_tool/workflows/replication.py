@@ -217,8 +217,8 @@ def _same_file(first, second) -> bool:
 
 def _not_the_same_rows(spec: Spec, first: pd.DataFrame, second: pd.DataFrame, first_source: str,
                        second_source: str) -> None:
-    """An error when one file's rows (on the model's variables) are all among the other's: a copy under another
-    name, or a validation file that contains the calibration rows, is not new data.  Files whose rows repeat
+    """An error when a fifth or more of one file's rows (on the model's variables) are among the other's: a copy under
+    another name, or a validation file that contains calibration rows, is not new data.  Files whose rows repeat
     (few items, few answer categories: equal rows are then common by chance) are judged only when at least 90%
     of the smaller file's rows are distinct."""
     columns = list(spec.observed_names)
@@ -232,14 +232,19 @@ def _not_the_same_rows(spec: Spec, first: pd.DataFrame, second: pd.DataFrame, fi
     if not small or len(set(small)) < 0.9 * len(small):
         return
     within = set(large)
-    if all(row in within for row in small):
-        same = len(a) == len(b)
+    shared = sum(row in within for row in small)
+    if shared >= SHARED_ROWS * len(small):
         inside = first_source if small is a else second_source
         raise OptionError((f"the calibration data ({first_source}) and the validation data ({second_source}) hold the "
-                           f"same rows" if same else
-                           f"every row of {inside} (on the model's variables) is also in the other file")
+                           f"same rows" if shared == len(a) == len(b) else
+                           f"{'every row' if shared == len(small) else f'{shared} of the {len(small)} rows'} of {inside} "
+                           f"(on the model's variables) {'is' if shared == len(small) else 'are'} also in the other file")
                           + "; replication checks the model in new data (or give one file as --data to split it in "
                             "two random halves)")
+
+
+#: the share of one file's (mostly distinct) rows found in the other beyond which the two are not separate samples
+SHARED_ROWS = 0.2
 
 
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,

@@ -370,3 +370,10 @@ def test_a_validation_file_with_the_calibration_rows_is_not_new_data(hs_data, tm
     with pytest.raises(OptionError, match=r"every row of \S*a.csv \(on the model's variables\) is also in the other file"):
         replicate(THREE_FACTORS, tmp_path / "a.csv", tmp_path / "all.csv")
     assert replicate(THREE_FACTORS, first, hs_data.iloc[150:]).validation  # other rows: a replication
+    # re-check: a validation file repeating most calibration rows beside new ones passed and looked far better
+    import pandas as pd
+
+    mixed = pd.concat([hs_data.iloc[150:], first.iloc[:60]])
+    with pytest.raises(OptionError, match=r"60 of the 150 rows of .* are also in the other file"):
+        replicate(THREE_FACTORS, first, mixed)
+    assert replicate(THREE_FACTORS, first, pd.concat([hs_data.iloc[150:], first.iloc[:20]])).validation  # 13%
