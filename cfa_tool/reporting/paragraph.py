@@ -610,11 +610,18 @@ def invariance_paragraph(result, levels) -> str:
                  f"{rule}" + (f", the difference test being {_list([m.phrase for m in methods])}" if methods else "")
                  + ".")
     parts.append(f"The configural model {_held(steps[0])} ({_fit_figures(first)}).")
-    for step in steps[1:]:
+    for k, step in enumerate(steps[1:], start=1):
         name = _capital(_LEVEL_WORDS.get(step.level, step.level))
         declared = _list([_parameter((r.kind, r.names, r.group), d) for r in step.declared]) if d is not None else \
             _list([str(r) for r in step.declared])
-        if step.declared and not step.partial:
+        earlier = [(f, s.level) for s in steps[1:k] for f in s.freed]  # freed by the search before: still free
+        if earlier and not step.partial:
+            kept = _list([f"the {f.kind.replace('_', ' ')} of {', '.join(f.variables)} (freed at the {level} step)"
+                          for f, level in earlier])
+            extra = f" and {declared} not held equal as the model file declares" if step.declared else ""
+            parts.append(f"{name} invariance, partial with {kept} still free{extra}, {_held(step)} "
+                         f"({_step_figures(step)}).")
+        elif step.declared and not step.partial:
             parts.append(f"{name} invariance, partial with {declared} not held equal across groups as the model file "
                          f"declares, {_held(step)} ({_step_figures(step)}).")
         elif step.partial:
@@ -625,6 +632,8 @@ def invariance_paragraph(result, levels) -> str:
             state = "held" if step.holds else "still did not hold" if step.result.admissible else _held(step)
             others = f"with {declared} not held equal as the model file declares and every other equality" \
                 if step.declared else "with every equality"
+            if earlier:
+                others += " but those freed at earlier steps"
             parts.append(f"{name} invariance did not hold {others} ({with_all}); after freeing {freed}, "
                          f"chosen one at a time by score tests (a data-driven search that capitalises on chance and "
                          f"needs confirmation in new data), it {state} as partial invariance ({_step_figures(step)}).")
@@ -645,13 +654,13 @@ def invariance_paragraph(result, levels) -> str:
         if totals:
             parts.append(f"For {_list(totals)}, explained by a higher-order factor, these are the total means and "
                          f"variances the model implies (Bollen, 1989), not those of the disturbances.")
-    if result.means_not_estimated:
+    if result.latent_differences and result.means_not_estimated:
         many = len(result.means_not_estimated) > 1
         parts.append(f"The mean{'s' if many else ''} of the higher-order factor{'s' if many else ''} "
                      f"{_list(list(result.means_not_estimated))} {'were' if many else 'was'} fixed at zero in every "
                      f"group (the means of the factors {'they explain' if many else 'it explains'} were free), so no "
                      f"difference was estimated for {'them' if many else 'it'}.")
-    elif result.latent_note:
+    elif result.latent_note and not result.latent_differences:  # why there are none (the note of the table else)
         parts.append(_capital(result.latent_note.rstrip(".")) + ".")
     parts.append("The guide values are conventions rather than strict criteria." if first.method.ordinal else
                  "The guide values and change-in-fit guides (Cheung & Rensvold, 2002; Chen, 2007) are conventions "

@@ -320,11 +320,12 @@ def _comparison_group_lines(comparison) -> tuple[str, ...]:
             f"Held equal across groups: {'; '.join(held)}.")
 
 
-def _step_label(step) -> str:
-    """A step's row label: partial when the search freed parameters or the model file declared some not equal."""
+def _step_label(step, inherited: bool = False) -> str:
+    """A step's row label: partial when the search freed parameters (here or at an earlier step: ``inherited``;
+    they stay free) or the model file declared some not equal."""
     if step.partial:
-        return f"{step.level} ({'partial, ' if step.declared else ''}{len(step.freed)} freed)"
-    return f"{step.level} (partial)" if step.declared else step.level
+        return f"{step.level} ({'partial, ' if step.declared or inherited else ''}{len(step.freed)} freed)"
+    return f"{step.level} (partial)" if step.declared or inherited else step.level
 
 
 def _declared_note(steps) -> str:
@@ -347,20 +348,22 @@ def invariance_report(result) -> Report:
     levels, level_values, flagged = [], [], []
     steps, step_values = [], []
     adjusted = any(step.result.robust is not None for step in result.steps)
-    for step in result.steps:
-        label = _step_label(step)
+    for k, step in enumerate(result.steps):
+        inherited = any(s.freed for s in result.steps[:k])
+        label = _step_label(step, inherited)
+        first_fit = "before its search" if inherited else "all equal"  # what the step's first fit held equal
         if step.partial and step.full_result is not None:
             cells, values = _level_fit_cells(step.full_result, adjusted)
-            levels.append([f"{step.level} (all equal)", *cells, _admissible_cell(step.full_result)])
-            level_values.append([f"{step.level} (all equal)", *values, _admissible_cell(step.full_result)])
+            levels.append([f"{step.level} ({first_fit})", *cells, _admissible_cell(step.full_result)])
+            level_values.append([f"{step.level} ({first_fit})", *values, _admissible_cell(step.full_result)])
             if step.full_result.converged and not step.full_result.admissible:
                 flagged.append(len(levels) - 1)
             if step.full_test is not None:
                 before = result.steps[result.steps.index(step) - 1].result
                 srmr = step.full_result.fit.srmr - before.fit.srmr
                 cells, values = _step_cells(step.full_test, srmr)
-                steps.append([f"{step.level} (all equal)", *cells, _verdict(step.full_holds, step.full_result)])
-                step_values.append([f"{step.level} (all equal)", *values, _verdict(step.full_holds, step.full_result)])
+                steps.append([f"{step.level} ({first_fit})", *cells, _verdict(step.full_holds, step.full_result)])
+                step_values.append([f"{step.level} ({first_fit})", *values, _verdict(step.full_holds, step.full_result)])
         cells, values = _level_fit_cells(step.result, adjusted)
         levels.append([label, *cells, _admissible_cell(step.result)])
         level_values.append([label, *values, _admissible_cell(step.result)])

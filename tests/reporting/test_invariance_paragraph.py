@@ -69,3 +69,16 @@ def test_ordinal_ladders_name_thresholds_first_and_the_adjusted_difference(hs_da
     assert "Threshold invariance" in text and "Thresholds invariance" not in text
     assert "(Satorra, 2000; Asparouhov & Muthen, 2006)" in text
     assert "\u0394CFI" not in text and "change-in-fit guides" not in text
+
+
+def test_parameters_freed_at_an_earlier_step_stay_free_and_are_said(partial_ladder):
+    # re-check: a step after a partial one keeps the freed parameters free; it read as plain full invariance, and
+    # the latent differences' table note was pasted into the paragraph
+    from cfa_tool.reporting.workflow_tables import invariance_report
+
+    text = _text(partial_ladder)
+    assert "Strict invariance did not hold with every equality but those freed at earlier steps" in text
+    assert "From the partially invariant scalar model:" not in text
+    labels = [row[0] for row in invariance_report(partial_ladder).tables[1].rows]
+    assert "strict (before its search)" in labels and "strict (partial, 1 freed)" in labels
+    assert "scalar (all equal)" in labels and "scalar (2 freed)" in labels
