@@ -732,6 +732,26 @@ def _inadmissible_phrase(results) -> str:
             f"the power, coverage and bias figures")
 
 
+def not_carried_line(not_carried) -> list[str]:
+    """What an earlier fit's data had that simulated rows do not: said beside what was simulated."""
+    if not not_carried:
+        return []
+    return [f"The earlier fit's {word_list(list(not_carried))} {'are' if len(not_carried) > 1 else 'is'} not carried "
+            f"over: every simulated row is independent, equally weighted and complete, so the figures are those of "
+            f"such a sample (with a design effect or missing answers, power is lower)."]
+
+
+def few_replications(replications: int) -> tuple[str, ...]:
+    """A caution when the replications are too few for power and coverage to two decimals: the Monte Carlo standard
+    error of a share p from R replications is sqrt(p (1 - p) / R)."""
+    if replications >= 100:
+        return ()
+    return (f"Only {replications} replications: a power near .80 has a Monte Carlo standard error of about "
+            f"{math.sqrt(0.16 / replications):.2f} and a coverage near 95% one of about "
+            f"{100 * math.sqrt(0.0475 / replications):.0f} points; give 500 or more (common practice) for figures to "
+            f"two decimals",)
+
+
 def montecarlo_report(result) -> Report:
     if hasattr(result, "results"):  # a power curve: several sample sizes
         return power_curve_report(result)
@@ -740,6 +760,7 @@ def montecarlo_report(result) -> Report:
              ] + _ordinal_power_lines(result)
     if result.defaulted:
         lines.append("Population values not given in the model file took defaults: " + ", ".join(result.defaulted))
+    lines += not_carried_line(result.not_carried)
     # what decides the plan first: power, then whether intervals and estimates can be trusted at this N
     rows = [[p.label, unit(p.power, 2), f"{100 * p.coverage:.1f}%", _percent(p.relative_bias), _percent(p.se_bias)]
             for p in result.parameters]
@@ -753,7 +774,7 @@ def montecarlo_report(result) -> Report:
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
-                  None, tuple(lines), (table,))
+                  None, tuple(lines), (table,), warnings=few_replications(result.replications))
 
 
 def power_curve_report(curve) -> Report:
@@ -767,6 +788,7 @@ def power_curve_report(curve) -> Report:
                                                            for r in curve.results) + " of the converged replications."]
     if first.defaulted:
         lines.append("Population values not given in the model file took defaults: " + ", ".join(first.defaulted))
+    lines += not_carried_line(first.not_carried)
     rows = [[p.label, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, p in enumerate(first.parameters)]
     values = [[p.label, *(r.parameters[k].power for r in curve.results)] for k, p in enumerate(first.parameters)]
     table = _table("power_by_sample_size", "Power per parameter and sample size",
@@ -775,7 +797,8 @@ def power_curve_report(curve) -> Report:
                    f"{unit(first.alpha, 2)}. Coverage and bias at each sample size are in the JSON result.",
                    values=(["Parameter", *(f"Power at N = {n}" for n in curve.sample_sizes)], values))
     return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {first.replications} replications "
-                                               f"per size (seed {first.seed})", None, tuple(lines), (table,))
+                                               f"per size (seed {first.seed})", None, tuple(lines), (table,),
+                  warnings=few_replications(first.replications))
 
 
 # ---------------------------------------------------------------- simulate
@@ -810,7 +833,8 @@ def population_report(simulated) -> Report:
     table = _table("population", "Population values used", [("Parameter", "l"), ("Value", "r"), ("Standardized", "r"),
                                                              ("From", "l")], rows,
                    values=(["Kind", "Variables", "Value", "Standardized", "From"], values))
-    return Report(ResultKind.SIMULATE, "Simulated data", None, (made, line), (table,))
+    carried = [] if simulated.missing else not_carried_line(population.not_carried)  # --missing gives gaps itself
+    return Report(ResultKind.SIMULATE, "Simulated data", None, (made, line, *carried), (table,))
 
 
 # ---------------------------------------------------------------- check

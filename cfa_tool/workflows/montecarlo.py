@@ -58,13 +58,15 @@ class MonteCarloPower(Presentable):
     model_rejected: float | None = None
     #: converged replications with a negative variance estimate (an inadmissible solution); they stay in the figures
     inadmissible: int = 0
+    #: what the earlier fit's data had that the simulated rows do not (simulation.Population.not_carried)
+    not_carried: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         return {"n_obs": self.n_obs, "replications": self.replications, "converged": self.converged,
                 "convergence_rate": self.converged / self.replications, "alpha": self.alpha, "seed": self.seed,
                 "parameters": [p.to_dict() for p in self.parameters], "population_defaults": list(self.defaulted),
                 "ordinal_items_fitted_by": self.ordinal, "model_test_rejection_rate": self.model_rejected,
-                "inadmissible": self.inadmissible}
+                "inadmissible": self.inadmissible, "not_carried_over": list(self.not_carried)}
 
 
 @dataclass(frozen=True)
@@ -184,7 +186,7 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
         powers.append(MonteCarloPower(n, replications, len(ok), alpha, seed,
                                       _parameter_rows(table.free_labels, np.array(truth), thetas, ses, alpha), defaulted,
                                       weighting.phrase, float(np.mean([d.p_value < alpha for d in ok])),
-                                      _negative_variances(thetas, variances)))
+                                      _negative_variances(thetas, variances), population.not_carried))
     return powers[0] if len(sizes) == 1 else PowerCurve(tuple(powers))
 
 
@@ -204,7 +206,7 @@ def _summary(population, n_obs: int, replications: int, seed: int, alpha: float,
     rows = _parameter_rows(table.free_labels, population.theta, thetas, ses, alpha)
     variances = sorted({p.terms[0][0] for p in table.parameters if p.kind in VARIANCE_KINDS and len(p.terms) == 1})
     return MonteCarloPower(n_obs, replications, len(ok), alpha, seed, rows, population.defaulted,
-                           inadmissible=_negative_variances(thetas, variances))
+                           inadmissible=_negative_variances(thetas, variances), not_carried=population.not_carried)
 
 
 #: the parameters whose negative estimate makes a solution inadmissible (a Heywood case)

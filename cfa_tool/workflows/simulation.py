@@ -64,6 +64,8 @@ class Population:
     means_from: ItemMeans = ItemMeans.CENTRED
     #: an earlier fit of a correlation matrix without standard deviations: values in standard-deviation units
     standard_units: bool = False
+    #: what the earlier fit's data had that simulated rows do not (its sampling design, its missing answers)
+    not_carried: tuple[str, ...] = ()
 
     @property
     def ordinal_items(self) -> tuple[str, ...]:
@@ -282,8 +284,10 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
         raise OptionError(f"{source}: its thresholds are not increasing finite numbers")
     means, means_from = _fitted_means(model, theta, value_of, payload, table.observed, ordinal)
     not_given = payload.get("data", {}).get("not_given", ()) if isinstance(payload.get("data"), dict) else ()
+    not_carried = tuple(what for what, had in (("sampling design", payload.get("design") is not None),
+                                               ("missing answers", payload.get("missing_data") is not None)) if had)
     return Population(spec, table, theta, sigma, (), source, cuts or None, means, means_from,
-                      "standard_deviations" in not_given)
+                      "standard_deviations" in not_given, not_carried)
 
 
 def _fitted_means(model: StructuredModel, theta: np.ndarray, value_of: dict, payload: dict, observed: tuple[str, ...],

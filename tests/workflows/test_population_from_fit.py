@@ -162,3 +162,24 @@ def test_an_edited_fit_with_an_impossible_estimate_is_one_line(tmp_path, fitted)
                "--population-from", str(tmp_path / "huge.json"))
     assert proc.returncode == 2 and "internal error" not in proc.stderr
     assert "not positive definite or not finite" in proc.stderr and not (tmp_path / "rows.csv").exists()
+
+
+def test_what_the_earlier_fit_had_and_the_simulation_has_not_is_said(tmp_path, hs_data):
+    # new-user trial: a weighted fit with gaps served as the population of power-simulation, which drew independent,
+    # equally weighted, complete rows without a word; 20 replications gave coverage and bias without a caution
+    data = hs_data.assign(w=1.0 + (np.arange(len(hs_data)) % 3))
+    data.loc[data.index[:30], "x5"] = np.nan
+    weighted = cfa_tool.fit(THREE, data, weights="w")
+    (tmp_path / "fit.json").write_text(json.dumps(weighted.to_dict()))
+    (tmp_path / "m.cfa").write_text(THREE)
+    proc = run("power-simulation", str(tmp_path / "m.cfa"), "--n", "200", "--replications", "20", "--workers", "1",
+               "--population-from", str(tmp_path / "fit.json"))
+    assert proc.returncode == 0, proc.stderr
+    said = " ".join(proc.stdout.split())
+    assert "The earlier fit's sampling design and missing answers are not carried over" in said
+    assert "Only 20 replications: a power near .80 has a Monte Carlo standard error of about 0.09" in said
+    plain = tmp_path / "plain.json"
+    plain.write_text(json.dumps(cfa_tool.fit(THREE, hs_data).to_dict()))
+    said = " ".join(run("power-simulation", str(tmp_path / "m.cfa"), "--n", "200", "--replications", "100",
+                        "--workers", "1", "--population-from", str(plain)).stdout.split())
+    assert "not carried over" not in said and "Only 100 replications" not in said
