@@ -61,8 +61,8 @@ def eigenvalue_table(result) -> ReportTable:
     rows = [[str(i + 1), num(pa.component_eigenvalues[i]), num(pa.component_reference[i]),
              num(pa.factor_eigenvalues[i]), num(pa.factor_reference[i])] for i in range(k)]
     return _table("eigenvalues", "Eigenvalues beside those of random data",
-                  [("Position", "r"), ("Components", "r"), ("Random, 95th percentile", "r"), ("Factors", "r"),
-                   ("Random, 95th percentile", "r")], rows,
+                  [("Position", "r"), ("Components", "r"), ("Random components, 95th percentile", "r"),
+                   ("Factors", "r"), ("Random factors, 95th percentile", "r")], rows,
                   "Components: eigenvalues of the correlation matrix; factors: of the reduced matrix (squared multiple "
                   "correlations on the diagonal). A factor counts while its eigenvalue exceeds the random one.")
 

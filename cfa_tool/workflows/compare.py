@@ -305,10 +305,16 @@ def _named(spec: Spec, name: str) -> str:
 
 
 def _unique_names(specs: list[Spec]) -> list[str]:
+    """Each model's name: its title, else its file's name; models of one title are told apart by their files
+    ('three factors (invm)'), and by a number only when the files do not differ either."""
+    first = [spec.title or Path(spec.source).stem for spec in specs]
     names = []
-    for spec in specs:
-        name = spec.title or Path(spec.source).stem
+    for spec, name in zip(specs, first):
+        if first.count(name) > 1 and spec.title and Path(spec.source).stem not in ("", "<model text>"):
+            name = f"{name} ({Path(spec.source).stem})"
+        base, k = name, 2
         while name in names:
-            name += "'"
+            name = f"{base} ({k})"
+            k += 1
         names.append(name)
     return names

@@ -6,6 +6,7 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 import pytest
 
@@ -130,13 +131,19 @@ def test_explore_and_replicate_of_two_files_caution_first(tmp_path, capsys):
     saved = json.loads((tmp_path / "explore.json").read_text())
     assert saved["data_problems"][0]["kind"] == "values that look like no answers"
     assert "data rows 3, 31, 100" in saved["problems"][0]
-    code, out, err = _run(["replicate", MODEL, "--calibration", data, "--validation", DEMO, "--json",
+    other = tmp_path / "other.csv"  # new rows (replicate refuses a validation file of the calibration rows)
+    demo = pd.read_csv(DEMO)
+    items = [c for c in demo.columns if pd.api.types.is_numeric_dtype(demo[c])]
+    rng = np.random.default_rng(3)
+    drawn = rng.multivariate_normal(demo[items].mean(), demo[items].cov(), size=len(demo))
+    pd.DataFrame(np.clip(np.round(drawn), 1, 5), columns=items).to_csv(other, index=False)
+    code, out, err = _run(["replicate", MODEL, "--calibration", data, "--validation", other, "--json",
                            tmp_path / "replicate.json"], capsys)
     out = " ".join(out.replace("│", " ").split())
     assert code == 0, err
     assert out.index("The item column clean of coded.csv holds the value -99") < out.index("Replication")
     saved = json.loads((tmp_path / "replicate.json").read_text())
     assert len(saved["replications"][0]["data_problems"]) == 1  # the calibration file's; the validation file has none
-    code, out, err = _run(["replicate", MODEL, "--calibration", data, "--validation", DEMO, "--missing-codes", "-99"],
+    code, out, err = _run(["replicate", MODEL, "--calibration", data, "--validation", other, "--missing-codes", "-99"],
                           capsys)
     assert code == 0 and "holds the value -99" not in out  # the advice's option is there

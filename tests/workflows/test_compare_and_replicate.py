@@ -377,3 +377,12 @@ def test_a_validation_file_with_the_calibration_rows_is_not_new_data(hs_data, tm
     with pytest.raises(OptionError, match=r"60 of the 150 rows of .* are also in the other file"):
         replicate(THREE_FACTORS, first, mixed)
     assert replicate(THREE_FACTORS, first, pd.concat([hs_data.iloc[150:], first.iloc[:20]])).validation  # 13%
+
+
+def test_models_of_one_title_are_told_apart_by_their_files(hs_data, tmp_path):
+    # re-check: three models titled alike read "three factors", "three factors'", "three factors''" in every view
+    for name, extra in (("plain", ""), ("fixed", "fix covariance(visual, speed) = 0.2\n")):
+        (tmp_path / f"{name}.cfa").write_text(THREE_FACTORS + extra)
+    result = compare([tmp_path / "plain.cfa", tmp_path / "fixed.cfa"], hs_data)
+    assert result.names == ("Holzinger-Swineford, three abilities (plain)",
+                            "Holzinger-Swineford, three abilities (fixed)")
