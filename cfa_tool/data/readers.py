@@ -350,7 +350,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
             index_col=False,
             decimal=decimal,
             skipinitialspace=True,
-            na_values=["", "NA", "N/A", "NaN", "nan", "."],
+            na_values=["", *MISSING_MARKERS],
             keep_default_na=False,
             # row names and id columns as written: '0007' stays '0007'
             dtype={k: str for k, name in enumerate(header) if (k == 0 and has_row_names) or name in text_columns}
@@ -366,6 +366,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     if decimal == ",":
         _check_dotted_thousands(frame, raw, header, path, notes)
     _keep_number_spellings(frame, raw)
+    _note_missing_markers(raw, header, path, notes)
     empty = widest - len(header)
     if empty and notes is not None:
         notes.append(f"{path}: empty fields at the end of the lines (a delimiter after the last value) were ignored")
@@ -389,6 +390,24 @@ def _decimal_mark(text: str, delimiter: str) -> str:
 
 
 _THOUSANDS_DOT = re.compile(r"\d\.\d{3}(?!\d)")
+
+
+#: cells read as no answer beside empty ones, as statistics packages and spreadsheets write them
+MISSING_MARKERS = ("NA", "N/A", "NaN", "nan", ".")
+_MARKER = re.compile(r"(?:^|[,;\t|])\s*\"?(?:NA|N/A|NaN|nan|\.)\"?\s*(?=[,;\t|]|$)", re.MULTILINE)
+
+
+def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list[str] | None) -> None:
+    """A note naming the cells written as a marker of no answer ('.', 'NA', ...), which are read as empty cells: the
+    tool's messages ask for empty cells, so a file of markers should say how it was read (new-user trial)."""
+    if notes is None or not _MARKER.search(raw.body):
+        return
+    cells = raw.frame().apply(lambda column: column.str.strip())
+    found = {m: int((cells == m).to_numpy().sum()) for m in MISSING_MARKERS}
+    found = {m: k for m, k in found.items() if k}
+    if found:
+        listed = ", ".join(f"'{m}' ({k:,} cell{'s' if k != 1 else ''})" for m, k in found.items())
+        notes.append(f"{path}: cells written as {listed} were read as no answer")
 
 
 class _RawCells:

@@ -473,3 +473,17 @@ def test_a_header_with_decomposed_accents_names_the_models_column(tmp_path, hs_i
     assert cfa_tool.fit(model, path).converged
     again = cfa_tool.fit(model.replace(composed, unicodedata.normalize("NFD", composed)), path)  # either way
     assert again.converged
+
+
+def test_cells_written_as_a_marker_of_no_answer_are_said(tmp_path):
+    # new-user trial: a file from a statistics package wrote '.' for no answer; it was read so without a word
+    from cfa_tool.data.readers import read_data
+
+    path = tmp_path / "dots.tsv"
+    path.write_text("a\tb\tc\n1\t.\t3\nNA\t2\t3.5\n4\t5\t6\n")
+    loaded = read_data(path)
+    assert loaded.frame.isna().sum().to_dict() == {"a": 1, "b": 1, "c": 0}
+    assert any("cells written as 'NA' (1 cell), '.' (1 cell) were read as no answer" in n for n in loaded.notes)
+    plain = tmp_path / "plain.csv"
+    plain.write_text("a,b\n1,2.5\n,3\n")
+    assert not any("read as no answer" in n for n in read_data(plain).notes)
