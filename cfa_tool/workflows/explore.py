@@ -93,7 +93,16 @@ class ExploreResult(Presentable):
 
     @property
     def draft_text(self) -> str:
-        return self.exploration.draft.text
+        text = self.exploration.draft.text
+        if self.requested is None and self._middle_count() == 0:  # the one factor shown for inspection only
+            text = ("# No factor was recommended: the three rules for the number of factors gave 0, so these items may\n"
+                    "# share no common factor. This one-factor draft is for inspection only.\n") + text
+        return text
+
+    def _middle_count(self) -> int:
+        """The middle value of the three combined rules (the recommendation before it is raised to 1)."""
+        count = self.exploration.count
+        return int(np.median([count.suggestion(r) for r in count.combined]))
 
     def problems(self) -> list[str]:
         """What makes the chosen solution doubtful, in plain words (every view shows these first)."""
@@ -113,7 +122,7 @@ class ExploreResult(Presentable):
         """Why the recommendation is what it is, in plain words."""
         count = self.exploration.count
         combined = [f"{RULE_WORDS[r]}: {count.suggestion(r)}" for r in count.combined]
-        middle = int(np.median([count.suggestion(r) for r in count.combined]))
+        middle = self._middle_count()
         if middle == 0:
             lines = [f"No factor recommended: the middle value of three rules is 0 ({'; '.join(combined)})."]
         else:

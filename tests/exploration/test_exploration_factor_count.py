@@ -136,8 +136,10 @@ def test_no_structure_is_no_factor_above_chance():
     # the report does not call the one factor shown for inspection "recommended" (hostile trial)
     from cfa_tool.workflows.explore import explore
 
-    reasons = explore(frame, replications=50).reasons()
+    explored = explore(frame, replications=50)
+    reasons = explored.reasons()
     assert reasons[0].startswith("No factor recommended: the middle value of three rules is 0 (")
+    assert explored.draft_text.startswith("# No factor was recommended: the three rules")  # the draft says so too
     assert not any("one more factor" in line or "The recommended solution" in line for line in reasons)
 
 
