@@ -292,6 +292,17 @@ def column_role(name: str) -> str | None:
     return None
 
 
+def _text_columns_phrase(frame: pd.DataFrame, numeric: tuple[str, ...]) -> str:
+    """The columns left out because they hold text (answers written as words among them: 'yes'/'no'), named, with
+    the way to explore them (new-user trial: six yes/no items left out without a word)."""
+    text = [str(c) for c in frame.columns if str(c) not in numeric and frame[c].notna().any()]
+    if not text:
+        return ""
+    shown = ", ".join(printable(c) for c in text[:10]) + (f" and {len(text) - 10} more" if len(text) > 10 else "")
+    return (f" Left out as text (not numbers): {shown}; answers written as words (yes/no, agree) must be recoded as "
+            f"numbers to be explored.")
+
+
 def _looks_like_row_ids(column: pd.Series) -> bool:
     """A column whose values are all different whole numbers: an id or a row number, not answers to an item."""
     values = column.dropna().to_numpy()
@@ -367,6 +378,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
                      + (" Left out by their names, as columns of the sampling design, ids or groups rather than "
                         "answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
                         + " (name them in --items to explore them)." if roles else "")
+                     + _text_columns_phrase(frame, numeric)
                      + " Check that no other column (age, grade, a code) is among the items.")
     requested = _factor_choice(factors)
     rotation_method = options.choice(RotationMethod, rotation, "the rotation")

@@ -241,3 +241,12 @@ def test_an_ordinal_exploration_names_its_scaled_statistic_and_shows_no_bic(hs_d
     assert "BIC" not in fits_table(result).columns
     continuous = fits_table(cfa_tool.explore(hs_data[ITEMS], replications=20))
     assert "BIC" in continuous.columns and "Chi-square" in continuous.columns
+
+
+def test_text_columns_left_out_are_named(hs_data):
+    # new-user trial: yes/no items written as words were left out of the default items without a word
+    import cfa_tool
+
+    frame = hs_data[ITEMS].assign(joined=np.where(hs_data.x1 > hs_data.x1.median(), "yes", "no"))
+    said = " ".join(cfa_tool.explore(frame, replications=20).summary().split())
+    assert "Left out as text (not numbers): joined; answers written as words" in said
