@@ -202,6 +202,18 @@ def _rules_caution() -> str:
     return RULES_CAUTION
 
 
+def nice_ticks(low: float, high: float, most: int = 6) -> list[float]:
+    """Round axis values within [low, high]: steps of 1, 2 or 5 times a power of ten, at most ``most`` of them,
+    always with 0 when the range holds it (an axis of 4.0, 2.9, 1.9, 0.9, -0.2 reads badly)."""
+    span = high - low if high > low else 1.0
+    for step in (m * 10.0 ** e for e in range(int(np.floor(np.log10(span / most))) - 1, 10) for m in (1, 2, 5)):
+        first = np.ceil(low / step - 1e-9) * step
+        ticks = [float(round(v, 10)) + 0.0 for v in np.arange(first, high + step * 1e-9, step)]  # no -0
+        if len(ticks) <= most:
+            return ticks
+    return [low, high]
+
+
 def scree_svg(result, width: int = 560, height: int = 320) -> str:
     """Eigenvalues by position (components and factors) with the 95th percentiles of random data, as inline SVG."""
     pa = result.exploration.count.parallel
@@ -229,8 +241,8 @@ def scree_svg(result, width: int = 560, height: int = 320) -> str:
         parts.append(f'<line x1="{left}" y1="{y(0):.1f}" x2="{width - right}" y2="{y(0):.1f}" stroke="#bbb"/>')
     for i in range(k):
         parts.append(f'<text x="{x(i):.1f}" y="{y(low) + 16:.1f}" font-size="11" text-anchor="middle">{i + 1}</text>')
-    for tick in np.linspace(low, high, 5):
-        parts.append(f'<text x="{left - 6}" y="{y(tick) + 4:.1f}" font-size="11" text-anchor="end">{tick:.1f}</text>')
+    for tick in nice_ticks(low, high):
+        parts.append(f'<text x="{left - 6}" y="{y(tick) + 4:.1f}" font-size="11" text-anchor="end">{tick:g}</text>')
     parts.append(f'<text x="{(left + width - right) / 2:.1f}" y="{height - 6}" font-size="12" text-anchor="middle">'
                  f'Position</text>')
     for n, (label, values, colour, dash) in enumerate(series):

@@ -53,3 +53,13 @@ def test_the_report_holds_the_scree_plot_the_draft_model_and_the_sections(shown)
         assert report_markdown(report).startswith("## Check before interpreting this solution")
         page = report_html(report)
         assert page.index('id="problems"') < page.index("<h1>")
+
+
+def test_the_scree_plot_axis_has_round_values():
+    # new-user trial: the axis read 4.0, 3.0, 1.9, 0.9, -0.2
+    from cfa_tool.reporting.explore_report import nice_ticks
+
+    assert nice_ticks(-0.2, 4.0) == [0.0, 1.0, 2.0, 3.0, 4.0]
+    assert nice_ticks(0.0, 1.37) == [0.0, 0.5, 1.0]
+    assert nice_ticks(-0.05, 0.4) == [0.0, 0.1, 0.2, 0.3, 0.4]
+    assert all(f"{t:g}" != "-0" for t in nice_ticks(-0.2, 4.0))
