@@ -1,7 +1,9 @@
 """An exploration is one report (cfa_tool.reporting.document.Report) drawn by the shared renderers, and it says
 every word and number its former layout of its own said: the words of that layout's terminal text, HTML page
 and Markdown file, kept for two seeded runs on the Holzinger & Swineford (1939) data in
-data/explore_words_before.json, are all found in the same format of the report model's views (layout may change)."""
+data/explore_words_before.json, are all found in the same format of the report model's views (layout may change).
+The scree plot's former axis values (five even splits of the range) were taken out of the kept words when the
+axis got round values."""
 
 from __future__ import annotations
 
