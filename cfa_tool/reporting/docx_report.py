@@ -187,14 +187,14 @@ def _grid(document, table: ReportTable, columns: list[int], widths: list[float],
     for k, gridcol in enumerate(grid._tbl.tblGrid.findall(qn("w:gridCol"))):
         gridcol.set(qn("w:w"), str(round(20 * widths[k])))
     faint = set(table.faint)
-    for r, values in enumerate(rows):
-        row = grid.rows[r]
+    # each row's cells taken once from the row: Table.cell(r, k) walks every cell of the table on each call, which
+    # made a 60-item matrix take minutes
+    for r, (values, row) in enumerate(zip(rows, grid.rows)):
         row_properties = row._tr.get_or_add_trPr()
         _property(row_properties, "w:cantSplit")
         if r == 0:
             _property(row_properties, "w:tblHeader")
-        for k, c in enumerate(columns):
-            cell = grid.cell(r, k)
+        for k, (c, cell) in enumerate(zip(columns, row.cells)):
             cell.width = Pt(widths[k])
             numeric = table.align[c] == "r"
             if numeric and r > 0:
