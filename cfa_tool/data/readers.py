@@ -394,7 +394,8 @@ _THOUSANDS_DOT = re.compile(r"\d\.\d{3}(?!\d)")
 
 #: cells read as no answer beside empty ones, as statistics packages and spreadsheets write them
 MISSING_MARKERS = ("NA", "N/A", "NaN", "nan", ".")
-_MARKER = re.compile(r"(?:^|[,;\t|])\s*\"?(?:NA|N/A|NaN|nan|\.)\"?\s*(?=[,;\t|]|$)", re.MULTILINE)
+_MARKER = re.compile(r"(?:^|[,;\t|])\s*\"?(?:" + "|".join(map(re.escape, MISSING_MARKERS)) + r")\"?\s*(?=[,;\t|]|$)",
+                     re.MULTILINE)
 
 
 def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list[str] | None) -> None:

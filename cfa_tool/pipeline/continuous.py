@@ -125,10 +125,11 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     labels = tuple(label for label, _ in groups) if multi else None
     table, model = model_structure(spec, labels, fiml)
     moments = [ordered_moments(m, table.observed) for _, m in groups]
+    rows = full_information_data(moments) if fiml else None  # the data's patterns: built once for every model
 
     def likelihood_of(model: StructuredModel) -> NormalLikelihood | MissingDataLikelihood:
         if fiml:
-            return full_information_likelihood(model, moments)
+            return MissingDataLikelihood(model, *rows)
         return NormalLikelihood(model, moments)
 
     def pooled_moments() -> tuple[np.ndarray, np.ndarray]:
@@ -155,13 +156,19 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, message)
 
 
-def full_information_likelihood(model: StructuredModel, moments: list[GroupMoments]) -> MissingDataLikelihood:
-    """The full-information discrepancy of ``model`` for each group's rows, ``moments`` holding the rows and
-    their EM (saturated) means and covariances."""
+def full_information_data(moments: list[GroupMoments]) -> tuple[list, list, list[GroupMoments]]:
+    """What a full-information discrepancy takes of each group's data, whatever the model: the rows by
+    missing-data pattern, the EM (saturated) means and covariances, and those as the groups' summaries."""
     patterns = [pattern_data(gm.rows, gm.design.weights if gm.design is not None else None) for gm in moments]
     saturated = [(gm.mean, gm.covariance) for gm in moments]
     summaries = [GroupMoments(gm.covariance, gm.mean, gm.n_obs, design=gm.design) for gm in moments]
-    return MissingDataLikelihood(model, patterns, saturated, summaries)
+    return patterns, saturated, summaries
+
+
+def full_information_likelihood(model: StructuredModel, moments: list[GroupMoments]) -> MissingDataLikelihood:
+    """The full-information discrepancy of ``model`` for each group's rows, ``moments`` holding the rows and
+    their EM (saturated) means and covariances."""
+    return MissingDataLikelihood(model, *full_information_data(moments))
 
 
 @lru_cache(maxsize=16)

@@ -205,7 +205,7 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
 
 def _pairwise_tests(specs, names, results, data_groups) -> tuple[list[DifferenceTest], list[NotNested]]:
     def test_pair(a: int, b: int) -> tuple[list[DifferenceTest], str]:
-        nested, reason, _ = is_nested(results[a], specs[b], results[b])
+        nested, reason, m10 = is_nested(results[a], specs[b], results[b])
         if not nested:
             return [], reason
         tests = [difference_test(results[a], results[b], names[a], names[b])]
@@ -216,7 +216,9 @@ def _pairwise_tests(specs, names, results, data_groups) -> tuple[list[Difference
             table, model = model_structure(specs[b], labels, fiml)
             moments = [ordered_moments(m, table.observed) for _, m in data_groups[b]]
             likelihood = full_information_likelihood(model, moments) if fiml else NormalLikelihood(model, moments)
-            c10 = scaling_at_restricted(results[a], table, model, likelihood, general.theta, general.fit.df)
+            # the nesting check fitted M10 already in the complete-data layout: its estimates start the search there
+            start = m10.theta if not fiml and len(m10.theta) == table.n_free else general.theta
+            c10 = scaling_at_restricted(results[a], table, model, likelihood, start, general.fit.df)
             tests.extend(scaled_difference_tests(results[a], general, names[a], names[b], c10,
                                                  NO_M10 if c10 is None and general.fit.df > 0 else ""))
         return tests, ""
