@@ -153,7 +153,7 @@ def _moments(x: np.ndarray, w: np.ndarray | None) -> tuple[float, float]:
 def polychoric_tables(tables: np.ndarray, ti: np.ndarray, tj: np.ndarray, iterations: int = 30,
                       tolerance: float = 1e-8) -> np.ndarray:
     """The polychoric correlations of many contingency tables at once, thresholds held at ``ti``, ``tj``
-    (the two-step estimator of Olsson 1979, as :func:`polychoric_pair`): Fisher scoring on rho for every table
+    (the two-step estimator of Olsson 1979): Fisher scoring on rho for every table
     together, d pi_ab / d rho being the bivariate normal density at the cell's corners (Plackett 1954).
     ``tables`` (B, K, L) of counts; ``ti`` (B, K - 1), ``tj`` (B, L - 1) of thresholds, items with fewer
     categories padded with +inf (their extra cells have probability 0 and count 0)."""
@@ -185,12 +185,28 @@ def polychoric_tables(tables: np.ndarray, ti: np.ndarray, tj: np.ndarray, iterat
     return rho
 
 
-def polychoric_pair(table: np.ndarray, ti: np.ndarray, tj: np.ndarray) -> float:
-    def negative(rho):
-        return -float(np.sum(table * np.log(cell_probabilities(ti, tj, rho))))
-
-    result = optimize.minimize_scalar(negative, bounds=(-0.999, 0.999), method="bounded", options={"xatol": 1e-10})
-    return float(result.x)
+def _pair_correlations(codes: np.ndarray, present: np.ndarray, thresholds: list, categories: list,
+                       rows_i: np.ndarray, cols_j: np.ndarray, w: np.ndarray | None) -> np.ndarray:
+    """The polychoric correlation of every pair (i, j) of two ordinal items (NaN for pairs with a continuous
+    item), all by one call of :func:`polychoric_tables`: each pair's table of (weighted) counts over the rows
+    that answered both, the thresholds padded with +inf to the largest number of categories."""
+    out = np.full(len(rows_i), np.nan)
+    ordinal = np.array([len(c) > 0 for c in categories])
+    which = np.flatnonzero(ordinal[rows_i] & ordinal[cols_j])
+    if not len(which):
+        return out
+    K = max(len(c) for c in categories)
+    padded = np.full((len(categories), K - 1), np.inf)
+    for j, t in enumerate(thresholds):
+        padded[j, :len(t)] = t
+    I, J = rows_i[which], cols_j[which]
+    tables = np.empty((len(which), K, K))
+    for k, (i, j) in enumerate(zip(I, J)):
+        both = present[:, i] & present[:, j]
+        tables[k] = np.bincount(codes[both, i] * K + codes[both, j], weights=None if w is None else w[both],
+                                minlength=K * K).reshape(K, K)
+    out[which] = polychoric_tables(tables, padded[I], padded[J])
+    return out
 
 
 def _polyserial_scores(z: np.ndarray, codes: np.ndarray, tau: np.ndarray, rho: float) -> np.ndarray:
@@ -360,6 +376,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         threshold_if.append(item_if)
     rows_i, cols_j = np.tril_indices(p, -1)
     R = np.eye(p)
+    polychoric = _pair_correlations(codes, present, thresholds, categories, rows_i, cols_j, w)
     influence = np.zeros((n, len(rows_i)))
     for k, (i, j) in enumerate(zip(rows_i, cols_j)):
         both = present[:, i] & present[:, j]
@@ -387,9 +404,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             influence[:, k] = (score - correction) / info_rr
             continue
         ci_codes, cj_codes = codes[both, i], codes[both, j]
-        table = np.zeros((len(categories[i]), len(categories[j])))
-        np.add.at(table, (ci_codes, cj_codes), 1.0 if w is None else w_both)
-        rho = polychoric_pair(table, thresholds[i], thresholds[j])
+        rho = polychoric[k]
         R[i, j] = R[j, i] = rho
         pi = cell_probabilities(thresholds[i], thresholds[j], rho)
         d_rho = _rho_derivative(thresholds[i], thresholds[j], rho)
