@@ -8,8 +8,9 @@ from cfa_tool.language.spec import Spec
 from cfa_tool.data.odd_values import code_like
 
 
-def check_columns(spec: Spec, columns: list[str], data_source: str) -> None:
-    """Every observed indicator must be a column; no factor may share a column's name."""
+def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: str = "") -> None:
+    """Every observed indicator must be a column; no factor may share a column's name.  ``sheet_hint``: which
+    sheet of a workbook of several was read (``LoadedData.sheet_hint``), said when a variable is not found."""
     available = set(columns)
     data_name = data_source.replace("\\", "/").rsplit("/", 1)[-1]
     for factor in spec.factors:
@@ -24,7 +25,7 @@ def check_columns(spec: Spec, columns: list[str], data_source: str) -> None:
         if name not in available:
             loc = spec.first_mention(name)
             guess = close_names(name, columns)
-            hint = f"; did you mean '{guess[0]}'?" if guess else ""
+            hint = f"; did you mean '{guess[0]}'?" if guess else sheet_hint
             raise ModelError(
                 f"unknown variable '{name}' (not a column of {data_name}{hint})",
                 loc,

@@ -150,11 +150,17 @@ def _moments(x: np.ndarray, w: np.ndarray | None) -> tuple[float, float]:
     return mean, float(np.sqrt(_average((x - mean) ** 2, w)))
 
 
-def polychoric_tables(tables: np.ndarray, ti: np.ndarray, tj: np.ndarray, iterations: int = 30,
-                      tolerance: float = 1e-8) -> np.ndarray:
+RHO_BOUND = 0.999  # the search for a correlation stays inside (-0.999, 0.999)
+
+
+def polychoric_tables(tables: np.ndarray, ti: np.ndarray, tj: np.ndarray, iterations: int = 100,
+                      tolerance: float = 1e-9) -> np.ndarray:
     """The polychoric correlations of many contingency tables at once, thresholds held at ``ti``, ``tj``
     (the two-step estimator of Olsson 1979): Fisher scoring on rho for every table
-    together, d pi_ab / d rho being the bivariate normal density at the cell's corners (Plackett 1954).
+    together, d pi_ab / d rho being the bivariate normal density at the cell's corners (Plackett 1954),
+    safeguarded by bisection: the sign of each table's score narrows a bracket of its maximum, and a step that
+    would leave the bracket goes to its middle instead (Newton's method with bisection, Press et al. 2007, rtsafe),
+    so that a step overshooting a steep likelihood cannot carry the search to the wrong bound.
     ``tables`` (B, K, L) of counts; ``ti`` (B, K - 1), ``tj`` (B, L - 1) of thresholds, items with fewer
     categories padded with +inf (their extra cells have probability 0 and count 0)."""
     tables = np.asarray(tables, dtype=float)
@@ -170,6 +176,7 @@ def polychoric_tables(tables: np.ndarray, ti: np.ndarray, tj: np.ndarray, iterat
     used = tables > 0
     n = tables.sum(axis=(1, 2))
     rho = np.zeros(B)
+    low, high = np.full(B, -RHO_BOUND), np.full(B, RHO_BOUND)  # each table's bracket of the maximum
     for _ in range(iterations):
         r = rho[:, None, None]
         F[:, 1:K, 1:L] = bivariate_cdf(a, b, r)
@@ -178,8 +185,12 @@ def polychoric_tables(tables: np.ndarray, ti: np.ndarray, tj: np.ndarray, iterat
         dP = f[:, 1:, 1:] - f[:, :-1, 1:] - f[:, 1:, :-1] + f[:, :-1, :-1]
         gradient = np.sum(np.where(used, tables * dP / P, 0.0), axis=(1, 2))
         information = n * np.sum(np.where(P > 1e-290, dP**2 / P, 0.0), axis=(1, 2))
-        step = gradient / np.maximum(information, 1e-12)
-        rho = np.clip(rho + step, -0.999, 0.999)
+        low = np.where(gradient > 0, rho, low)
+        high = np.where(gradient < 0, rho, high)
+        proposal = rho + gradient / np.maximum(information, 1e-12)
+        outside = ~((proposal > low) & (proposal < high))
+        new = np.where(outside, (low + high) / 2, proposal)
+        step, rho = new - rho, new
         if np.all(np.abs(step) < tolerance):
             break
     return rho
@@ -234,7 +245,7 @@ def polyserial_pair(z: np.ndarray, codes: np.ndarray, tau: np.ndarray, w: np.nda
         log = np.log(np.clip(prob, 1e-300, None))
         return -float(np.sum(log) if w is None else w @ log)
 
-    return float(optimize.minimize_scalar(negative, bounds=(-0.999, 0.999), method="bounded", options={"xatol": 1e-10}).x)
+    return float(optimize.minimize_scalar(negative, bounds=(-RHO_BOUND, RHO_BOUND), method="bounded", options={"xatol": 1e-10}).x)
 
 
 def _polyserial_parts(x: np.ndarray, codes: np.ndarray, tau: np.ndarray, rho: float,

@@ -48,6 +48,16 @@ class LoadedData:
     #: the model's item columns of ``frame`` as one float array, taken out once for the screening, the missing-data
     #: handling and the moments (None before the model is known)
     items: ItemColumns | None = None
+    #: a workbook of several sheets read without a sheet named: every sheet's name, the one read first
+    sheets: tuple[str, ...] = ()
+
+    def sheet_hint(self) -> str:
+        """Words for a message about a missing column: which sheet of a workbook of several was read."""
+        if len(self.sheets) < 2:
+            return ""
+        others = ", ".join(f"'{printable(s)}'" for s in self.sheets[1:])
+        return (f"; its first sheet, '{printable(self.sheets[0])}', was read, and the workbook also has {others}: "
+                f"name the sheet of the data with --sheet")
 
 
 EXCEL_SUFFIXES = (".xlsx", ".xlsm")
@@ -70,8 +80,10 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     if suffix in EXCEL_SUFFIXES:
         notes: list[str] = []
         names: list[pd.Series] = []
-        loaded = LoadedData(_read_excel(path, sheet, notes, names), str(path), notes=tuple(notes),
-                            row_names=names[0] if names else None)
+        sheets: list[str] = []
+        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets), str(path), notes=tuple(notes),
+                            row_names=names[0] if names else None,
+                            sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else ())
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _read_labelled(path)
     elif suffix in (".xls",):
@@ -105,7 +117,8 @@ def _composed_names(loaded: LoadedData) -> LoadedData:
                    value_labels={composed(k): v for k, v in loaded.value_labels.items()})
 
 
-def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list | None = None) -> pd.DataFrame:
+def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list | None = None,
+                sheets_out: list | None = None) -> pd.DataFrame:
     try:
         import openpyxl
     except ImportError:  # pragma: no cover - a declared dependency
@@ -115,6 +128,8 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     except Exception as exc:  # openpyxl raises many kinds for damaged files
         raise DataError(f"'{path}' cannot be read as an Excel workbook ({type(exc).__name__})") from None
     names = book.sheetnames
+    if sheets_out is not None:
+        sheets_out.extend(names)
     if sheet is not None and not isinstance(sheet, str):
         raise DataError(f"the sheet must be given by its name (text), not {type(sheet).__name__}")
     if sheet is None:
@@ -135,6 +150,12 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if first is None:
         raise DataError(f"{where} is empty")
     rows = rows[first:]  # empty rows above the header
+    title = _title_above_header(rows)
+    if title is not None:
+        notes.append(f"{where}: row {first + 1} holds a title ('{printable(title)[:60]}') above the column names, "
+                     f"which were read from row {first + 2}")
+        first += 1
+        rows = rows[1:]
     merged = [str(rng) for rng in ws.merged_cells.ranges if rng.min_row == first + 1]
     if merged:
         raise DataError(f"{where}: the header row has merged cells ({merged[0]}); "
@@ -156,6 +177,13 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     body = [list(r[:width]) for r in rows[1:] if any(v is not None for v in r[:width])]
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
+    found = dict.fromkeys(MISSING_MARKERS, 0)
+    for r in body:
+        for k, v in enumerate(r):
+            if isinstance(v, str) and v.strip() in found:
+                found[v.strip()] += 1
+                r[k] = None
+    _say_markers(found, where, notes)
     if any(v is None for r in body for v in r):
         _check_uncomputed_formulas(path, ws.title, first)
     frame = pd.DataFrame(body, columns=header)
@@ -167,6 +195,18 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
 
 
 MAX_EXCEL_CELLS = 20_000_000
+
+
+def _title_above_header(rows: list) -> str | None:
+    """The text of a title row above a sheet's header (one filled cell, often merged across the table, over a row
+    that names at least two columns, all as text), or None."""
+    if len(rows) < 3:
+        return None
+    filled = [v for v in rows[0] if v not in (None, "")]
+    names = [v for v in rows[1] if v not in (None, "")]
+    if len(filled) == 1 and isinstance(filled[0], str) and len(names) >= 2 and all(isinstance(v, str) for v in names):
+        return filled[0].strip()
+    return None
 
 
 def _check_uncomputed_formulas(path: Path, title: str, first: int) -> None:
@@ -393,7 +433,7 @@ _THOUSANDS_DOT = re.compile(r"\d\.\d{3}(?!\d)")
 
 
 #: cells read as no answer beside empty ones, as statistics packages and spreadsheets write them
-MISSING_MARKERS = ("NA", "N/A", "NaN", "nan", ".")
+MISSING_MARKERS = ("NA", "N/A", "n/a", "#N/A", "NaN", "nan", ".")
 _MARKER = re.compile(r"(?:^|[,;\t|])\s*\"?(?:" + "|".join(map(re.escape, MISSING_MARKERS)) + r")\"?\s*(?=[,;\t|]|$)",
                      re.MULTILINE)
 
@@ -404,11 +444,15 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
     if notes is None or not _MARKER.search(raw.body):
         return
     cells = raw.frame().apply(lambda column: column.str.strip())
-    found = {m: int((cells == m).to_numpy().sum()) for m in MISSING_MARKERS}
+    _say_markers({m: int((cells == m).to_numpy().sum()) for m in MISSING_MARKERS}, path, notes)
+
+
+def _say_markers(found: dict[str, int], where, notes: list[str] | None) -> None:
+    """The note naming how many cells of each marker of no answer were read as empty."""
     found = {m: k for m, k in found.items() if k}
-    if found:
+    if found and notes is not None:
         listed = ", ".join(f"'{m}' ({k:,} cell{'s' if k != 1 else ''})" for m, k in found.items())
-        notes.append(f"{path}: cells written as {listed} were read as no answer")
+        notes.append(f"{where}: cells written as {listed} were read as no answer")
 
 
 class _RawCells:

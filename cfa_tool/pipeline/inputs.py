@@ -152,7 +152,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     if filters:
         frame, filter_notes = apply_filters(frame, filters, loaded.source, loaded.value_labels)
         notes += filter_notes
-    check_columns(spec, columns, loaded.source)
+    check_columns(spec, columns, loaded.source, loaded.sheet_hint())
     check_declared_ranges(spec, frame, loaded.source)
     frame, labelled = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)
     if labelled:

@@ -122,7 +122,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
     for spec in specs[1:]:
-        check_columns(spec, list(frame.columns), source)
+        check_columns(spec, list(frame.columns), source, loaded.sheet_hint())
     used = sorted({x for spec in specs for x in spec.observed_names})
     if group is not None and group in frame.columns:
         frame = frame.loc[frame[group].notna()]

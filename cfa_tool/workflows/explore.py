@@ -15,7 +15,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from cfa_tool.errors import OptionError, printable
+from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.exploration import (CountNote, CountRule, Exploration, ExploreSettings, ExtractionMethod, RotationMethod,
                                   RotationSpec, explore_correlations, from_ordinal_moments, from_sample_moments)
 from cfa_tool.exploration.factor_count import CLOSE_RMSEA, FitStep, fit_sequence
@@ -380,6 +380,11 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
                         + " (name them in --items to explore them)." if roles else "")
                      + _text_columns_phrase(frame, numeric)
                      + " Check that no other column (age, grade, a code) is among the items.")
+        if len(chosen) < 3:
+            found = (f"only {len(chosen)} of its columns hold{'s' if len(chosen) == 1 else ''} answers as numbers "
+                     f"({', '.join(printable(c) for c in chosen)})" if chosen else "none of its columns holds numbers")
+            raise DataError(f"{source}: {found}, and an exploratory factor analysis needs at least 3 items"
+                            + (loaded.sheet_hint() or "; name the items with --items"))
     requested = _factor_choice(factors)
     rotation_method = options.choice(RotationMethod, rotation, "the rotation")
     extraction_method = options.choice(ExtractionMethod, extraction, "the extraction")

@@ -121,6 +121,62 @@ def test_excel_workbook_and_sheet_choice(tmp_path, hs_items, hs_three):
         cfa_tool.fit(THREE_FACTORS, path, sheet="score")
 
 
+def test_workbook_whose_first_sheet_is_a_codebook(tmp_path, hs_items, hs_three):
+    # a codebook sheet before the data (new-user trial): the error names the sheet read and the others, for fit
+    # and for explore (which stopped with an internal error on a sheet without numbers)
+    path = tmp_path / "hs.xlsx"
+    with pd.ExcelWriter(path, engine="openpyxl") as writer:
+        pd.DataFrame({"variable": ITEMS, "meaning": ["a test score"] * 9}).to_excel(writer, sheet_name="Codebook",
+                                                                                   index=False)
+        hs_items.to_excel(writer, sheet_name="Data", index=False)
+    with pytest.raises(ModelError, match="its first sheet, 'Codebook', was read, and the workbook also has 'Data': "
+                                         "name the sheet of the data with --sheet"):
+        cfa_tool.fit(THREE_FACTORS, path)
+    with pytest.raises(DataError, match="none of its columns holds numbers.*also has 'Data'"):
+        cfa_tool.explore(path, replications=5)
+    assert cfa_tool.fit(THREE_FACTORS, path, sheet="Data").fit.chi_square == pytest.approx(hs_three.fit.chi_square,
+                                                                                           rel=1e-9)
+
+
+def test_title_above_the_column_names_and_markers_of_no_answer(tmp_path, hs_items, hs_three):
+    # a sheet with a title merged across the table above the names (as reports are laid out) is read from the
+    # names down, with a note; 'n/a' and '#N/A' cells (spreadsheets' words for no answer) are read as empty in a
+    # workbook and in a CSV, with a note counting them: the same fit as the data with those cells empty
+    import openpyxl
+
+    data = hs_items[ITEMS].round(6)
+    book = openpyxl.Workbook()
+    sheet = book.active
+    sheet.append(["Visual, verbal and speed tests, 1939"] + [None] * 8)
+    sheet.merge_cells("A1:I1")
+    sheet.append(ITEMS)
+    for k, row in enumerate(data.itertuples(index=False)):
+        row = list(row)
+        if k == 3:
+            row[1] = "n/a"
+        if k == 7:
+            row[4] = " #N/A"
+        sheet.append(row)
+    path = tmp_path / "titled.xlsx"
+    book.save(path)
+    gaps = data.copy()
+    gaps.iloc[3, 1] = np.nan
+    gaps.iloc[7, 4] = np.nan
+    expected = cfa_tool.fit(THREE_FACTORS, gaps)
+    result = cfa_tool.fit(THREE_FACTORS, path)
+    assert result.fit.chi_square == pytest.approx(expected.fit.chi_square, rel=1e-9)
+    from cfa_tool.data.readers import read_data
+
+    notes = " ".join(read_data(path).notes)
+    assert "row 1 holds a title ('Visual, verbal and speed tests, 1939') above the column names" in notes
+    assert "cells written as 'n/a' (1 cell), '#N/A' (1 cell) were read as no answer" in notes
+    text = gaps.to_csv(index=False, na_rep="n/a")
+    (tmp_path / "gaps.csv").write_text(text)
+    from_csv = cfa_tool.fit(THREE_FACTORS, tmp_path / "gaps.csv")
+    assert from_csv.fit.chi_square == pytest.approx(expected.fit.chi_square, rel=1e-9)
+    assert "cells written as 'n/a' (2 cells) were read as no answer" in " ".join(read_data(tmp_path / "gaps.csv").notes)
+
+
 def test_excel_merged_header_is_refused(tmp_path):
     import openpyxl
 

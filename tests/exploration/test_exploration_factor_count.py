@@ -224,3 +224,47 @@ def test_ordinal_parallel_analysis_takes_its_reference_from_shuffled_answers():
     assert abs(off.mean()) < 0.01 and 0.8 / np.sqrt(400) < off.std() < 1.6 / np.sqrt(400)
     mixed = dataclasses.replace(ordinal, codes=None, thresholds=None)  # continuous items beside: normal data
     assert parallel_analysis(mixed, replications=30, seed=2).reference is ParallelReference.NORMAL
+
+
+def test_polychoric_search_reaches_the_maximum_of_steep_and_flat_likelihoods():
+    # Tables of every shape, correlations up to .995 in size and skewed thresholds, all in one batched call:
+    # each correlation's log-likelihood is at least that of scipy's bounded scalar search (an independent
+    # maximiser; Olsson 1979 likelihood).  Plain Fisher scoring from 0 overshot steep likelihoods of 2 x 2
+    # tables to the opposite bound (0.60 estimated as -0.02, 0.98 as -0.999) before the bisection safeguard.
+    from scipy.optimize import minimize_scalar
+    from scipy.stats import norm
+
+    from cfa_tool.data.polychoric import cell_probabilities, polychoric_tables
+
+    rng = np.random.default_rng(1)
+    cases = []
+    while len(cases) < 150:
+        r = rng.uniform(-0.995, 0.995)
+        k, l, n = rng.integers(2, 8), rng.integers(2, 8), int(rng.integers(30, 3000))
+        z = rng.multivariate_normal([0, 0], [[1, r], [r, 1]], n)
+        x = np.searchsorted(np.sort(rng.normal(size=k - 1) * 1.5), z[:, 0])
+        y = np.searchsorted(np.sort(rng.normal(size=l - 1) * 1.5), z[:, 1])
+        ux, uy = np.unique(x), np.unique(y)
+        if len(ux) < 2 or len(uy) < 2:
+            continue
+        table = np.zeros((len(ux), len(uy)))
+        np.add.at(table, (np.searchsorted(ux, x), np.searchsorted(uy, y)), 1)
+        ti = norm.ppf(np.cumsum(table.sum(axis=1))[:-1] / n)
+        tj = norm.ppf(np.cumsum(table.sum(axis=0))[:-1] / n)
+        cases.append((table, ti, tj))
+    K = 7
+    tables = np.zeros((len(cases), K, K))
+    first, second = np.full((len(cases), K - 1), np.inf), np.full((len(cases), K - 1), np.inf)
+    for b, (table, ti, tj) in enumerate(cases):
+        tables[b, :table.shape[0], :table.shape[1]] = table
+        first[b, :len(ti)], second[b, :len(tj)] = ti, tj
+    found = polychoric_tables(tables, first, second)
+    shortfalls = []
+    for rho, (table, ti, tj) in zip(found, cases):
+        def negative(r, table=table, ti=ti, tj=tj):
+            return -float(np.sum(table * np.log(np.clip(cell_probabilities(ti, tj, r), 1e-300, None))))
+
+        best = minimize_scalar(negative, bounds=(-0.999, 0.999), method="bounded", options={"xatol": 1e-10})
+        shortfalls.append(negative(rho) - best.fun)
+    assert max(shortfalls) < 1e-6
+    assert np.median(np.abs(found)) > 0.3  # the cases include strong correlations
