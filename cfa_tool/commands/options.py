@@ -45,7 +45,12 @@ def _codes(text: str) -> tuple[float, ...]:
 
     codes = [number(t) for t in text.split(",") if t.strip()]
     if not codes or any(c is None for c in codes):
-        raise argparse.ArgumentTypeError(f"missing codes must be numbers separated by commas, not '{text}'")
+        from cfa_tool.data.readers import MISSING_MARKERS
+
+        raise argparse.ArgumentTypeError(
+            f"missing codes must be numbers separated by commas, not '{text}' (cells written as "
+            f"{', '.join(MISSING_MARKERS[:-1])} or {MISSING_MARKERS[-1]} are read as no answer without this option; "
+            f"other words that mean no answer: replace them with empty cells in a copy of the file)")
     return tuple(codes)
 
 

@@ -109,8 +109,12 @@ def _structure(result, d) -> str:
         text = _list(parts)
     else:
         text = f"{_count(len(d.indicators), 'indicator')} of {factors}"
-    for higher, lower in d.higher_order:
+    if len(d.higher_order) == 1:
+        higher, lower = d.higher_order[0]
         text += f", with a higher-order factor ({higher}) explaining {_list(lower)},"
+    elif d.higher_order:
+        text += (", with higher-order factors " + _list([f"{higher} (explaining {_list(lower)})"
+                                                         for higher, lower in d.higher_order]) + ",")
     return text
 
 
@@ -389,14 +393,20 @@ def methods_paragraph(result) -> str:
         if items:
             parts.append(f"The method factor {factor} was indicated by {_list(items)}; its standardized loadings "
                          f"{_range(on_factor)}.")
+    higher = {r.variables[0] for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed}
     if second:
-        what = "The standardized loadings of the factors on the higher-order factor"
+        what = ("The standardized loadings of the factors on the higher-order factor" if len(higher) == 1 else
+                "The standardized loadings of the first-order factors on the higher-order factors")
         parts.append(f"{what} {_range(second)}.")
-    corr = [r.standardized for r in result.estimates if r.kind == "factor_covariance"]
+    correlated = [r for r in result.estimates if r.kind == "factor_covariance"]
+    corr = [r.standardized for r in correlated]
     if corr and not result.multigroup:
         which = " of the confirmatory factors" if blocks else ""
+        if higher and all(set(r.variables) <= higher for r in correlated):
+            which = " of the higher-order factors" + (f" ({_list(sorted(higher))})" if len(corr) == 1 else "")
         if len(corr) == 1:
-            parts.append(f"The factor correlation{which} was {unit(corr[0], 2)}.")
+            parts.append(f"The {'' if which.startswith(' of the higher') else 'factor '}correlation{which} was "
+                         f"{unit(corr[0], 2)}.")
         else:
             parts.append(f"Factor correlations{which} ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}.")
     if result.fit.df > 0 and not inadmissible:
@@ -535,9 +545,13 @@ def comparison_paragraph(comparison) -> str:
     if pairs and first.method.ordinal:
         parts.append("Changes in CFI and RMSEA were not used: each model's indices come from its own adjusted "
                      "statistic, so their changes cannot be compared across models.")
-    elif pairs:
+    elif pairs and comparison.change_guides_apply:
         parts.append("Changes in CFI and RMSEA were read against conventional guides (Cheung & Rensvold, 2002; Chen, "
                      "2007), which are conventions rather than tests.")
+    elif pairs:
+        parts.append("Changes in CFI and RMSEA are reported as descriptions only: the conventional guides for them "
+                     "(Cheung & Rensvold, 2002; Chen, 2007) were set for tests of measurement invariance across "
+                     "groups, not for rival structures.")
     return " ".join(parts)
 
 

@@ -19,6 +19,9 @@ from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotic
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
 CHANGE_GUIDES = ("Changes in CFI and RMSEA are read against common-practice guides (a fall in CFI of more than .010, "
                  "Cheung & Rensvold 2002; a rise in RMSEA of .015 or more, Chen 2007), which are conventions, not tests.")
+CHANGES_DESCRIBED = ("Changes in CFI and RMSEA describe the difference only: the common-practice guides for them "
+                     "(Cheung & Rensvold 2002; Chen 2007) were set for steps of measurement invariance across groups, "
+                     "not for rival structures.")
 
 
 def _admissible_cell(result) -> str:
@@ -237,7 +240,8 @@ def comparison_report(comparison) -> Report:
         advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
         notes.append(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
     if comparison.tests:
-        notes.append(f"{ORDINAL_FIT_CHANGE[0].upper()}{ORDINAL_FIT_CHANGE[1:]}." if ordinal else CHANGE_GUIDES)
+        notes.append(f"{ORDINAL_FIT_CHANGE[0].upper()}{ORDINAL_FIT_CHANGE[1:]}." if ordinal
+                     else CHANGE_GUIDES if comparison.change_guides_apply else CHANGES_DESCRIBED)
     notes += list(comparison.notes)
     return Report(ResultKind.COMPARE, "Model comparison", _notice(problems, cautions), lines, tuple(tables),
                   tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), comparison_paragraph(comparison))
@@ -794,10 +798,24 @@ def power_curve_report(curve) -> Report:
     table = _table("power_by_sample_size", "Power per parameter and sample size",
                    [("Parameter", "l")] + [(f"N = {n}", "r") for n in curve.sample_sizes], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha "
-                   f"{unit(first.alpha, 2)}. Coverage and bias at each sample size are in the JSON result.",
+                   f"{unit(first.alpha, 2)}.",
                    values=(["Parameter", *(f"Power at N = {n}" for n in curve.sample_sizes)], values))
+    # whether intervals and estimates can be trusted at each size: coverage and bias beside each other per size
+    heads = [("Parameter", "l")] + [(f"{what} at N = {n}", "r") for n in curve.sample_sizes
+                                    for what in ("Coverage", "Estimate bias %", "SE bias %")]
+    rows = [[p.label, *(cell for r in curve.results for cell in (
+        f"{100 * r.parameters[k].coverage:.1f}%", _percent(r.parameters[k].relative_bias),
+        _percent(r.parameters[k].se_bias)))] for k, p in enumerate(first.parameters)]
+    values = [[p.label, *(v for r in curve.results for v in (
+        r.parameters[k].coverage, r.parameters[k].relative_bias, r.parameters[k].se_bias))]
+        for k, p in enumerate(first.parameters)]
+    trust = _table("coverage_and_bias_by_sample_size", "Coverage and bias per parameter and sample size", heads, rows,
+                   "Coverage: share of 95% Wald intervals that hold the population value (nominal 95%); bias: mean "
+                   "estimate (or mean SE) against the population value (or the SD of the estimates). Population "
+                   "values, mean estimates and SDs are in the JSON result.",
+                   values=([h for h, _ in heads], values))
     return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {first.replications} replications "
-                                               f"per size (seed {first.seed})", None, tuple(lines), (table,),
+                                               f"per size (seed {first.seed})", None, tuple(lines), (table, trust),
                   warnings=few_replications(first.replications))
 
 

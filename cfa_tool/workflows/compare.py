@@ -52,6 +52,13 @@ class Comparison(Presentable):
     notes: tuple[str, ...] = ()
     problems: tuple = ()  # of the data: values that look like no answers (assessment.admissibility.Problem)
 
+    @property
+    def change_guides_apply(self) -> bool:
+        """Whether the change-in-fit guides (Cheung & Rensvold 2002; Chen 2007) apply: they were set for steps of
+        measurement invariance, equalities added across groups, so for models with groups only (and never for
+        ordinal fits, whose adjusted indices are not compared across models)."""
+        return self.results[0].multigroup and not self.results[0].method.ordinal
+
     def to_dict(self) -> dict:
         return {
             "data_problems": [p.to_dict() for p in self.problems],
@@ -72,6 +79,7 @@ class Comparison(Presentable):
             "tests": [t.to_dict() for t in self.tests],
             # ordinal fits: the tests' delta_cfi and delta_rmsea are null, and why
             "fit_index_changes_left_out": ORDINAL_FIT_CHANGE if self.results[0].method.ordinal else None,
+            "change_guides_apply": self.change_guides_apply,
             "design": self.results[0].design.to_dict() if self.results[0].design is not None else None,
             "not_nested": [dict(first=n.first, second=n.second, reason=n.reason,
                                 information_criteria_comparable=n.information_criteria) for n in self.not_nested],

@@ -133,8 +133,8 @@ class ExploreResult(Presentable):
                 other = [f"{RULE_WORDS[s.rule]}: {s.factors}" for s in count.suggestions
                          if s.factors is not None and s.factors != middle]
                 agree = len({count.suggestion(r) for r in count.combined}) == 1
-                lines.append((f"The three rules agree; other rules count otherwise ({'; '.join(other)})." if agree else
-                              f"The rules disagree about the number of factors ({'; '.join(other)} count otherwise).")
+                lines.append((f"The three rules agree; other rules count otherwise: {'; '.join(other)}." if agree else
+                              f"The rules disagree about the number of factors; other counts: {'; '.join(other)}.")
                              if other else NOTE_WORDS[note])
             elif middle == 0:  # no factor recommended: the notes about the one factor shown for inspection
                 if note not in (CountNote.NEXT_EIGENVALUE_BORDERLINE, CountNote.NEXT_EIGENVALUE_ABOVE_CHANCE):

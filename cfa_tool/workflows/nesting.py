@@ -103,7 +103,9 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
       (unless it is a method factor or every item of it loads on another factor too) to the one holding more than
       half of its items; two or more factors belonging to one restricted factor are merged, which fixes their
       correlations at 1 (a factor covariance matrix of rank k - 1 lower for k merged; one merge of two factors is
-      one parameter on the boundary);
+      one parameter on the boundary); merged factors that are indicators of a higher-order factor in the general
+      model correlate 1 only with their disturbance variances at 0, one parameter on the boundary each (two
+      first-order factors merged under one higher-order factor: two, so no 50:50 mixture; Stoel et al. 2006);
     * a factor belonging to none is left out: its variance is 0 and its loadings are then not identified, so no
       mixture applies; so is a factor of an exploratory block of the general model when the restricted model has
       fewer factors on the block's items (the likelihood-ratio test of the number of factors is not chi-square
@@ -135,11 +137,19 @@ def boundary_of(restricted_spec: Spec, restricted: FitResult, general_spec: Spec
         elif items_r:
             parts.append(f"factor {g} left out (its variance fixed at 0)")
             identified = False
+    explained = {i.text for f in general_spec.factors for i in f.indicators if i.text in general_spec.factor_names}
     for r, merged in owner.items():
         if len(merged) > 1:
-            parts.append(f"factors {_listed(merged)} merged into {r} (their correlation{'s' if len(merged) > 2 else ''} "
-                         f"fixed at 1)")
-            on_boundary += len(merged) - 1
+            below = [g for g in merged if g in explained]
+            if below:  # factors under a higher-order factor correlate 1 only when their disturbances vanish
+                parts.append(f"factors {_listed(merged)} merged into {r} (their correlation"
+                             f"{'s' if len(merged) > 2 else ''} fixed at 1: in the general model, the disturbance "
+                             f"variance{'s' if len(below) > 1 else ''} of {_listed(below)} at 0)")
+                on_boundary += max(len(below), len(merged) - 1)
+            else:
+                parts.append(f"factors {_listed(merged)} merged into {r} (their correlation"
+                             f"{'s' if len(merged) > 2 else ''} fixed at 1)")
+                on_boundary += len(merged) - 1
     free_in_general = {(e.kind, frozenset(e.variables) if "covariance" in e.kind else e.variables, e.group)
                        for e in general.estimates if e.free}
     for e in restricted.estimates:

@@ -285,7 +285,7 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
     means, means_from = _fitted_means(model, theta, value_of, payload, table.observed, ordinal)
     not_given = payload.get("data", {}).get("not_given", ()) if isinstance(payload.get("data"), dict) else ()
     not_carried = tuple(what for what, had in (("sampling design", payload.get("design") is not None),
-                                               ("missing answers", payload.get("missing_data") is not None)) if had)
+                                               ("pattern of missing answers", payload.get("missing_data") is not None)) if had)
     return Population(spec, table, theta, sigma, (), source, cuts or None, means, means_from,
                       "standard_deviations" in not_given, not_carried)
 

@@ -63,7 +63,7 @@ def test_the_recommendation_on_holzinger_swineford_is_reported_with_its_reasons(
     for rule in others:
         assert f"{rule['description']}: {rule['factors']}" in said
     if others and len({r["factors"] for r in count["rules"] if r["in_recommendation"]}) == 1:
-        assert "The three rules agree; other rules count otherwise (" in said
+        assert "The three rules agree; other rules count otherwise: " in said
     R = np.corrcoef(hs_data[ITEMS].to_numpy(float), rowvar=False)
     eigen = np.sort(np.linalg.eigvalsh(R))[::-1]  # numpy as an independent computation
     np.testing.assert_allclose(count["parallel_analysis"]["component_eigenvalues"], eigen, atol=1e-10)

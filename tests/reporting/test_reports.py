@@ -382,3 +382,23 @@ def test_paragraph_names_second_order_loadings_and_a_single_correlation(hs_data)
     two = cfa_tool.fit("factor visual: x1, x2, x3\nfactor speed: x7, x8, x9\n", hs_data)
     (r,) = [e.standardized for e in two.estimates if e.kind == "factor_covariance"]
     assert f"The factor correlation was {f'{r:.2f}'.replace('0.', '.', 1)}." in methods_paragraph(two)
+
+
+def test_methods_paragraph_of_two_higher_order_factors():
+    # two higher-order factors over two first-order factors each (new-user trial 6, U7): one clause for both,
+    # without the doubled comma, and their correlation named as theirs (invented population values)
+    from tests.conftest import simulate_cfa
+
+    L = np.zeros((12, 4))
+    for k in range(4):
+        L[3 * k:3 * k + 3, k] = 0.7
+    phi = np.array([[1.0, 0.6, 0.3, 0.3], [0.6, 1.0, 0.3, 0.3], [0.3, 0.3, 1.0, 0.6], [0.3, 0.3, 0.6, 1.0]])
+    rows = simulate_cfa(L, phi, np.diag(np.full(12, 0.51)), 500, 7)
+    rows.columns = [f"y{i}" for i in range(1, 13)]
+    model = ("factor a: y1, y2, y3\nfactor b: y4, y5, y6\nfactor c: y7, y8, y9\nfactor d: y10, y11, y12\n"
+             "factor e: a, b\nfactor f: c, d\n")
+    text = methods_paragraph(cfa_tool.fit(model, rows))
+    assert ("with higher-order factors e (explaining a and b) and f (explaining c and d), was estimated" in text), text
+    assert ",," not in text
+    assert "The standardized loadings of the first-order factors on the higher-order factors ranged from" in text
+    assert "The correlation of the higher-order factors (e and f) was ." in text

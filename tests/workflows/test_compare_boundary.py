@@ -113,3 +113,36 @@ def test_fewer_factors_than_an_exploratory_block_is_said_without_a_mixture():
     # the same number of factors, confirmatory against exploratory: nothing on the boundary
     (same,) = compare([TWO, "exploratory factors f1, f2 from y1..y6\n"], data).tests
     assert same.boundary == ()
+
+
+def test_factors_merged_under_a_higher_order_factor_put_their_disturbances_on_the_boundary():
+    # four first-order factors under two higher-order factors (two each) against the model with the last two merged:
+    # the merged factors correlate 1 only when both disturbance variances are 0, two parameters on the boundary
+    # (Stoel et al. 2006), so no 50:50 mixture (new-user trial 6, U5); the four-factor model against the merge keeps
+    # its one parameter (the correlation of two factors with no disturbances).  Population: invented values.
+    L = np.zeros((12, 4))
+    for k in range(4):
+        L[3 * k:3 * k + 3, k] = 0.7
+    phi = np.array([[1.0, 0.6, 0.3, 0.3], [0.6, 1.0, 0.3, 0.3], [0.3, 0.3, 1.0, 0.8], [0.3, 0.3, 0.8, 1.0]])
+    rows = simulate_cfa(L, phi, np.diag(np.full(12, 0.51)), 500, 20261203)
+    rows.columns = [f"y{i}" for i in range(1, 13)]
+    first = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\nfactor c: y7, y8, y9\nfactor d: y10, y11, y12\n"
+    second = first + "factor e: a, b\nfactor f: c, d\n"
+    merged = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\nfactor cd: y7, y8, y9, y10, y11, y12\n"
+    comparison = compare([merged, second, first], rows)
+    against_second = [t for t in comparison.tests if t.general != comparison.names[2] and t.restricted ==
+                      comparison.names[0]]
+    assert against_second
+    for t in against_second:
+        assert t.boundary == ("factors c and d merged into cd (their correlation fixed at 1: in the general model, "
+                              "the disturbance variances of c and d at 0)",)
+        assert np.isnan(t.boundary_p_value)
+    against_first = [t for t in comparison.tests if t.general == comparison.names[2] and t.restricted ==
+                     comparison.names[0] and not t.not_computed]
+    assert against_first and all(np.isfinite(t.boundary_p_value) for t in against_first)
+    # the change-in-fit guides were set for invariance steps: for rival structures the changes are descriptions
+    report = comparison_report(comparison)
+    assert any("describe the difference only" in n for n in report.notes)
+    assert "were set for tests of measurement invariance across groups, not for rival structures" in report.paragraph
+    assert "were read against conventional guides" not in report.paragraph
+    assert comparison.to_dict()["change_guides_apply"] is False

@@ -71,3 +71,9 @@ def test_a_step_whose_2001_correction_is_not_positive_reads_the_strictly_positiv
     (expected,) = [t for t in pair.tests if t.method is metric.method]
     assert metric.chi_square_difference == pytest.approx(expected.chi_square_difference, rel=1e-8)
     assert metric.df_difference == expected.df_difference == 6
+    # equalities across groups are what the change-in-fit guides were set for (Cheung & Rensvold 2002): cited
+    from cfa_tool.reporting.workflow_tables import comparison_report
+
+    assert pair.change_guides_apply
+    assert ("were read against conventional guides (Cheung & Rensvold, 2002; Chen, 2007)"
+            in comparison_report(pair).paragraph)

@@ -148,6 +148,16 @@ def test_power_by_sample_size_agrees_with_the_analytic_values():
     assert out["sample_sizes"] == [100, 300]
     assert [p["power"] for p in out["power"] if p["label"] == "covariance(f, g)"][0] == [
         [p.power for p in r.parameters if p.label == "covariance(f, g)"][0] for r in curve.results]
+    # the report shows coverage and bias at each size beside power (new-user trial 6: they were in the JSON only),
+    # the same figures as the single-size result's
+    from cfa_tool.reporting.workflow_tables import power_curve_report
+
+    trust = next(t for t in power_curve_report(curve).tables if t.key == "coverage_and_bias_by_sample_size")
+    heads, values = trust.value_columns, trust.values
+    assert list(heads[1:4]) == ["Coverage at N = 100", "Estimate bias % at N = 100", "SE bias % at N = 100"]
+    row = next(v for v in values if v[0] == "covariance(f, g)")
+    last = [p for p in curve.results[1].parameters if p.label == "covariance(f, g)"][0]
+    assert list(row[4:]) == [last.coverage, last.relative_bias, last.se_bias]
     # one size in a list is the single-size result, seeds included
     assert monte_carlo_power(spec, [100], replications=5, seed=4, workers=1) == monte_carlo_power(
         spec, 100, replications=5, seed=4, workers=1)

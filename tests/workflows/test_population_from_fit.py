@@ -176,7 +176,7 @@ def test_what_the_earlier_fit_had_and_the_simulation_has_not_is_said(tmp_path, h
                "--population-from", str(tmp_path / "fit.json"))
     assert proc.returncode == 0, proc.stderr
     said = " ".join(proc.stdout.split())
-    assert "The earlier fit's sampling design and missing answers are not carried over" in said
+    assert "The earlier fit's sampling design and pattern of missing answers are not carried over" in said
     assert "Only 20 replications: a power near .80 has a Monte Carlo standard error of about 0.09" in said
     plain = tmp_path / "plain.json"
     plain.write_text(json.dumps(cfa_tool.fit(THREE, hs_data).to_dict()))
