@@ -49,6 +49,22 @@ def _figure_note(result) -> str:
     return note
 
 
+def _two_factor_higher_order(result) -> tuple[str, ...]:
+    """A note on higher-order factors that explain two first-order factors only (a lone one is refused when the
+    model is read): like a factor of two indicators, each is identified only through its covariance with another
+    higher-order factor (Kenny 1979), so its loadings are barely determined when that covariance is small."""
+    d = getattr(result, "description", None)
+    two = [(h, lower) for h, lower in (d.higher_order if d is not None else ()) if len(lower) == 2]
+    if not two:
+        return ()
+    named = "; ".join(f"{h} explains {lower[0]} and {lower[1]}" for h, lower in two)
+    one = len(two) == 1
+    return (f"Higher-order {'factor' if one else 'factors'} over two factors ({named}): {'it is' if one else 'each is'}"
+            f" identified only through its covariance with another higher-order factor, as a factor of two "
+            f"indicators is through its correlations with other factors (Kenny 1979), so the loadings of the "
+            f"first-order factors on {'it' if one else 'them'} are barely determined when that covariance is small.",)
+
+
 def fit_report(result) -> Report:
     """The report of the fit ``result``: the problems first; the model, the data and the estimation, with the
     cautions about the data right under them; the methods paragraph, the path diagrams, the tables, the model
@@ -60,6 +76,7 @@ def fit_report(result) -> Report:
                            + " (standardized values)", path_diagram(result, k), _figure_note(result))
                     for k, g in enumerate(result.groups))
     left_out = T.matrices_left_out(result)
+    notes = (() if left_out is None else (left_out,)) + _two_factor_higher_order(result)
     return Report(ResultKind.FIT, result.model_name, T.problem_notice(result), lines, tuple(fit_tables(result)),
-                  () if left_out is None else (left_out,), (HIGH_STAKES_NOTE,), methods_paragraph(result), figures, T.problem_table(result), warnings,
+                  notes, (HIGH_STAKES_NOTE,), methods_paragraph(result), figures, T.problem_table(result), warnings,
                   (Listing("Model", result.model_text),))

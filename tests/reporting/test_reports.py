@@ -397,7 +397,12 @@ def test_methods_paragraph_of_two_higher_order_factors():
     rows.columns = [f"y{i}" for i in range(1, 13)]
     model = ("factor a: y1, y2, y3\nfactor b: y4, y5, y6\nfactor c: y7, y8, y9\nfactor d: y10, y11, y12\n"
              "factor e: a, b\nfactor f: c, d\n")
-    text = methods_paragraph(cfa_tool.fit(model, rows))
+    result = cfa_tool.fit(model, rows)
+    text = methods_paragraph(result)
+    # and a note that each is identified only through the other (Kenny 1979 on two-indicator factors)
+    said = " ".join(result.summary().split())
+    assert ("Higher-order factors over two factors (e explains a and b; f explains c and d): each is identified only "
+            "through its covariance with another higher-order factor") in said
     assert ("with higher-order factors e (explaining a and b) and f (explaining c and d), was estimated" in text), text
     assert ",," not in text
     assert "The standardized loadings of the first-order factors on the higher-order factors ranged from" in text
