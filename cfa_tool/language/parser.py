@@ -529,26 +529,29 @@ class _Builder:
         return tuple(names)
 
     def expand_range(self, node: Tree) -> list[Name]:
-        first, last = node.children
+        """The names of a range 'item1..item9' (either end may be quoted: '"Énergie_1".."Énergie_4"')."""
+        ends = node.children
+        first, last = (self.name(end).text for end in ends)
+        at = ends[0].children[0]
         pattern = re.compile(r"^(.*?)(\d+)$")
         m1, m2 = pattern.match(str(first)), pattern.match(str(last))
         if not m1 or not m2:
-            raise self.error(f"a range such as 'item1..item9' needs names ending in numbers; got '{first}..{last}'", first)
+            raise self.error(f"a range such as 'item1..item9' needs names ending in numbers; got '{first}..{last}'", at)
         if m1.group(1) != m2.group(1):
-            raise self.error(f"the two ends of the range '{first}..{last}' must share the prefix before the number", first)
+            raise self.error(f"the two ends of the range '{first}..{last}' must share the prefix before the number", at)
         if max(len(m1.group(2)), len(m2.group(2))) > 9:
-            raise self.error(f"the numbers of the range '{_clip(first)}..{_clip(last)}' are too long (at most 9 digits)", first)
+            raise self.error(f"the numbers of the range '{_clip(first)}..{_clip(last)}' are too long (at most 9 digits)", at)
         lo, hi = int(m1.group(2)), int(m2.group(2))
         if lo > hi:
-            raise self.error(f"the range '{first}..{last}' counts down; write the smaller number first", first)
+            raise self.error(f"the range '{first}..{last}' counts down; write the smaller number first", at)
         if hi - lo >= MAX_RANGE:
             raise self.error(f"the range '{first}..{last}' names {hi - lo + 1:,} variables; a range names at most "
-                             f"{MAX_RANGE:,}", first)
+                             f"{MAX_RANGE:,}", at)
         width = len(m1.group(2)) if m1.group(2).startswith("0") else 0
-        location = self.loc(first)
+        location = self.loc(at)
         self.expanded += hi - lo + 1
         if self.expanded > MAX_NAMES:
-            raise self.error(f"the ranges of this model name more than {MAX_NAMES:,} variables in all", first)
+            raise self.error(f"the ranges of this model name more than {MAX_NAMES:,} variables in all", at)
         return [Name(f"{m1.group(1)}{str(i).zfill(width)}", location) for i in range(lo, hi + 1)]
 
     def refs(self, node: Tree) -> tuple[ParameterRef, ...]:

@@ -65,6 +65,12 @@ def test_table_follows_the_statements():
 def test_ranges_and_quoted_names():
     spec = parse_model('factor f: item1..item3, q08..q10, "item 99"\n', "r.cfa")
     assert spec.observed_names == ("item1", "item2", "item3", "q08", "q09", "q10", "item 99")
+    # a range of quoted names (names beyond A-Z need quotes; new-user trial 6, U11), either end quoted
+    spec = parse_model('factor f: "\u00c9nergie_1".."\u00c9nergie_3", "w 8".."w 10"\n', "r.cfa")
+    assert spec.observed_names == ("\u00c9nergie_1", "\u00c9nergie_2", "\u00c9nergie_3", "w 8", "w 9", "w 10")
+    with pytest.raises(ModelError, match="must share the prefix before the number") as err:
+        parse_model('factor f: a1, "\u00c9nergie_1".."Energie_3"\n', "r.cfa")
+    assert err.value.location.column == 15
 
 
 def test_covary_with_more_names_means_every_pair():
