@@ -18,6 +18,7 @@ from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Inf
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
+from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.numbers import index_text, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
 
@@ -115,18 +116,9 @@ def _structure(result, d) -> str:
 
 
 def _parameter(ref: tuple, d) -> str:
-    """A parameter in words: 'the loading of x2 on visual', 'the residual variance of x5'."""
+    """A model file's parameter (kind, names, group) in words: 'the loading of x2 on visual'."""
     kind, names, group = ref
-    residual = "residual " if names and names[0] in d.indicators else ""
-    text = {
-        "loading": lambda: f"the loading of {names[1]} on {names[0]}" if len(names) == 2 else f"a loading of {names}",
-        "variance": lambda: f"the {residual}variance of {names[0]}",
-        "covariance": lambda: f"the {residual}covariance of {names[0]} and {names[1]}",
-        "intercept": lambda: f"the intercept of {names[0]}",
-        "mean": lambda: f"the mean of {names[0]}",
-        "threshold": lambda: f"the thresholds of {names[0]}",
-    }.get(kind, lambda: f"{kind}({', '.join(names)})")()
-    return text + (f" in group {group}" if group is not None else "")
+    return parameter_words(kind, tuple(names), group, d.indicators)
 
 
 def _scale_sentence(d) -> str:

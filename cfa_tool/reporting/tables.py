@@ -137,9 +137,9 @@ def problem_table(result) -> ReportTable | None:
     notice = problem_notice(result)
     if notice is None:
         return None
-    rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameters),
+    rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()),
              "" if p.value is None else num(p.value), p.group or "", p.explanation, p.advice] for p in result.problems]
-    values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameters), p.value, p.group or "",
+    values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()), p.value, p.group or "",
                p.explanation, p.advice] for p in result.problems]
     columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
                ("Explanation", "l"), ("What to try", "l")]

@@ -8,6 +8,7 @@ import math
 
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
+from cfa_tool.model.description import parameter_words
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
@@ -407,9 +408,9 @@ def invariance_report(result) -> Report:
         CONFIGURAL_ORDINAL_NOTE if ordinal else CONFIGURAL_NOTE]
     if result.freed:
         many = len(result.groups) > 2
-        rows = [[f.level, f"{f.kind.replace('_', ' ')} {', '.join(f.variables)}", *([str(f.group)] if many else []),
+        rows = [[f.level, parameter_words(f.kind, f.variables), *([str(f.group)] if many else []),
                  num(f.score, 2)] for f in result.freed]
-        values = [[f.level, f"{f.kind.replace('_', ' ')} {', '.join(f.variables)}", *([str(f.group)] if many else []),
+        values = [[f.level, parameter_words(f.kind, f.variables), *([str(f.group)] if many else []),
                    f.score] for f in result.freed]
         columns = [("Level", "l"), ("Parameter", "l")] + ([("Pointed to by group", "l")] if many else []) + [
             ("Score test", "r")]
@@ -428,7 +429,7 @@ def invariance_report(result) -> Report:
             notes.append(f"The search at the {step.level} step {freed_words}stopped: {step.stopped}.")
         if not step.holds and step.culprits:
             notes.append(f"Likeliest sources of misfit at the {step.level} step (score tests): " + "; ".join(
-                f"{c.kind.replace('_', ' ')} {', '.join(c.variables)} in {c.group} ({c.index:.2f})"
+                f"{parameter_words(c.kind, c.variables, c.group)} ({c.index:.2f})"
                 for c in step.culprits[:5]))
     if result.latent_differences:
         rows = [[d.factor, d.group, num(d.mean), num(d.se), f"[{num(d.ci95[0], 2)}, {num(d.ci95[1], 2)}]",

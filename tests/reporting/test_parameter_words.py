@@ -1,0 +1,79 @@
+"""Parameters are named in the words a researcher uses, in every view: 'the loading of x2 on visual',
+'the residual variance of x9', 'the covariance of factors visual and speed', '... in group Pasteur'.  The
+machine labels of the parameter table ('loading(visual, x2)') stay in the JSON's 'parameters' key only.
+
+The bound case: in the Holzinger & Swineford (1939) three-factor model the loading of x2 on visual is about
+.55 (the unrestricted estimate of the same model elsewhere in this suite), so a bound at .3 holds it there."""
+
+from __future__ import annotations
+
+import json
+import re
+
+import pytest
+
+import cfa_tool
+from cfa_tool.model.description import label_words, parameter_words, split_label
+from cfa_tool.reporting.docx_report import report_docx
+from cfa_tool.reporting.fit_document import fit_report
+from cfa_tool.reporting.html_report import report_html
+from cfa_tool.reporting.paragraph import methods_paragraph
+from cfa_tool.reporting.terminal import report_text
+from cfa_tool.reporting.text_formats import report_markdown
+from cfa_tool.reporting.workflow_tables import invariance_report
+from cfa_tool.workflows.invariance import invariance
+from tests.conftest import THREE_FACTORS
+from tests.reporting.test_fit_views import _html_text, _plain, _word_text
+
+BOUND = THREE_FACTORS + "bound loading(visual, x2) <= 0.3\n"
+#: a machine label as the parameter table writes it: kind(names)
+MACHINE = re.compile(r"\b(loading|factor_variance|factor_covariance|residual_variance|residual_covariance|intercept|"
+                     r"mean|threshold)\([A-Za-z0-9_]+(, [A-Za-z0-9_]+)?\)")
+
+
+def test_every_kind_of_parameter_in_words():
+    assert parameter_words("loading", ("courtesy", "helpful")) == "the loading of helpful on courtesy"
+    assert parameter_words("residual_variance", ("temperature",)) == "the residual variance of temperature"
+    assert parameter_words("factor_variance", ("F1",)) == "the variance of factor F1"
+    assert parameter_words("factor_covariance", ("F1", "F2")) == "the covariance of factors F1 and F2"
+    assert parameter_words("residual_covariance", ("x7", "x8")) == "the residual covariance of x7 and x8"
+    assert parameter_words("intercept", ("x1",), "north") == "the intercept of x1 in group north"
+    assert parameter_words("threshold", ("x1", "2")) == "threshold 2 of x1"
+    # a model file's kinds: an item's variance is its residual's, a factor's its own
+    assert parameter_words("variance", ("x1",), observed=("x1",)) == "the residual variance of x1"
+    assert parameter_words("variance", ("F1",), observed=("x1",)) == "the variance of factor F1"
+    assert split_label("loading(courtesy, helpful) [south]") == ("loading", ("courtesy", "helpful"), "south")
+    assert label_words("residual_variance(x9) [Pasteur]") == "the residual variance of x9 in group Pasteur"
+
+
+@pytest.fixture(scope="module")
+def bound_fit(hs_data):
+    result = cfa_tool.fit(BOUND, hs_data)
+    assert [p.parameters for p in result.problems] == [("loading(visual, x2)",)]
+    return result
+
+
+def test_every_view_of_a_fit_names_the_bound_parameter_in_words(bound_fit):
+    report = fit_report(bound_fit)
+    views = {"terminal": _plain(report_text(report, 100)), "HTML": _plain(_html_text(report_html(report))),
+             "Markdown": _plain(report_markdown(report)), "Word": _plain(_word_text(report_docx(report, 72))),
+             "paragraph": _plain(methods_paragraph(bound_fit))}
+    for name, text in views.items():
+        assert "The loading of x2 on visual is held at its upper bound (0.3)" in text or name == "paragraph", name
+        assert "the loading of x2 on visual held at a bound" in text, name
+        model_file = text.find("bound loading(visual, x2) <= 0.3")  # the model file as written, where a view shows it
+        prose = text if model_file < 0 else text[:model_file] + text[model_file + 33:]
+        assert not MACHINE.search(prose), (name, MACHINE.search(prose))
+    out = bound_fit.to_dict()["problems"][0]
+    assert out["parameters"] == ["loading(visual, x2)"]  # the stable key for programs
+    assert out["parameters_in_words"] == ["the loading of x2 on visual"]
+    assert out["explanation"].startswith("The loading of x2 on visual is held at its upper bound")
+
+
+def test_the_invariance_ladder_names_each_group_parameter_in_words(hs_data):
+    result = invariance(BOUND, hs_data, "school")
+    text = _plain(report_text(invariance_report(result), 100))
+    assert "the loading of x2 on visual in group Grant-White held at a bound" in text
+    assert "the loading of x2 on visual in group Pasteur held at a bound" in text
+    assert not MACHINE.search(text.replace("bound loading(visual, x2) <= 0.3", "")), MACHINE.search(text)
+    assert "parameters_in_words" in json.dumps(result.to_dict())
