@@ -13,6 +13,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
+from cfa_tool.reporting.terminal import report_text
 from cfa_tool.reporting.workflow_tables import invariance_report
 from cfa_tool.workflows.invariance import invariance
 from tests.conftest import THREE_FACTORS
@@ -82,3 +83,37 @@ def test_parameters_freed_at_an_earlier_step_stay_free_and_are_said(partial_ladd
     labels = [row[0] for row in invariance_report(partial_ladder).tables[1].rows]
     assert "strict (before its search)" in labels and "strict (partial, 1 freed)" in labels
     assert "scalar (all equal)" in labels and "scalar (2 freed)" in labels
+
+
+def test_an_inadmissible_configural_step_comes_before_any_step_that_met_its_test(hs_data):
+    # found in a re-check: after an inadmissible configural step the paragraph said 'Metric invariance held' before
+    # its caveat.  A bound at .7 holds the loading of x2 on visual in Grant-White (its estimate there is above .7,
+    # about .39 in Pasteur: this model's own configural fit), so only the configural solution is inadmissible; the
+    # metric step meets its test (the tutorial's 8.19 on 6 df, recalled from memory, moves to 8.14 with the bound)
+    result = invariance(THREE_FACTORS + "bound loading(visual, x2) <= 0.7\n", hs_data, "school", partial="auto")
+    assert [s.result.admissible for s in result.steps] == [False, True, True, True]
+    assert result.steps[1].holds and result.steps[1].conditional
+    text = _text(result)
+    problem = text.index("The solution of the configural model was not admissible (the loading of x2 on visual in "
+                         "group Grant-White held at a bound)")
+    assert problem < text.index("The configural model did not hold: its solution was not admissible")
+    assert "held (" not in text and "held as partial" not in text  # no step reads as held
+    assert ("Metric invariance cannot be read as held, though it met its test: it rests on the configural step, "
+            "which was not admissible (\u03c7\u00b2(6) = 8.14") in text
+    assert ("it met its test as partial invariance (\u03c7\u00b2(4) = 5.38, p = .251, \u0394CFI = -.002, \u0394RMSEA = "
+            "-.002, \u0394SRMR = +.000) but cannot be read as held: it rests on the configural step") in text
+    assert ("Resting on the configural step, which was not admissible, the latent mean differences from the partially "
+            "invariant scalar model cannot be read as established") in text
+    assert problem < min(text.index(w) for w in ("met its test", "latent mean differences"))
+    # the terminal view's paragraph keeps the same order (the ladder marks the steps with '*')
+    rendered = " ".join(report_text(invariance_report(result), 100).split())
+    assert rendered.index("The solution of the configural model was not admissible") < rendered.index("met its test")
+    assert "the intercept of x3 and the intercept of x7" in text  # what the search freed, in words
+
+
+def test_a_misfitting_but_admissible_configural_step_keeps_its_closing_caveat(partial_ladder):
+    text = _text(partial_ladder)
+    assert "cannot be read as held" not in text and "was not admissible" not in text
+    assert "Metric invariance held (\u03c7\u00b2(6) = 8.19" in text
+    assert "tested after a step that did not hold, so they compare models already rejected" in text
+
