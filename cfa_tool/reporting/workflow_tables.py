@@ -270,8 +270,8 @@ CONFIGURAL_GUIDE = ("The configural model holds when it fits by the guide values
 CONFIGURAL_NOTE = (f"{CONFIGURAL_GUIDE} Change-in-fit guides are common practice: CFI falling by no more than .010 "
                    "(Cheung & Rensvold 2002), RMSEA rising by less than .015, SRMR by less than .030 for loadings and "
                    ".010 after (Chen 2007). All guides are conventions, not laws.")
-CONFIGURAL_ORDINAL_NOTE = (f"{CONFIGURAL_GUIDE} Changes in fit indices between steps are not shown with ordinal items "
-                           "(see above). The guides are conventions, not laws.")
+CONFIGURAL_ORDINAL_NOTE = (f"{CONFIGURAL_GUIDE} Changes in fit indices between steps are not shown: "
+                           f"{ORDINAL_FIT_CHANGE}. The guides are conventions, not laws.")
 ADJUSTED_NOTE = (f"Ordinal items: chi-square, CFI and RMSEA come from the {FitTest.SCALE_SHIFTED.label} statistic, and "
                  f"each difference test is the {DifferenceMethod.SCALE_SHIFTED}. The adjusted statistic's "
                  f"{FitTest.SCALE_SHIFTED.correction} are estimated anew for each model, so it can fall when constraints "

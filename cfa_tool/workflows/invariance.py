@@ -30,7 +30,7 @@ from cfa_tool.data.sample_design import check_design, design_columns, design_sum
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.workflows.nesting import DifferenceTest, difference_test, scaled_difference_tests, scaling_at_restricted
 from cfa_tool.views import Presentable
-from cfa_tool.method import DecisionRule  # (declared with the other choices; imported from here too)
+from cfa_tool.method import ORDINAL_FIT_CHANGE, DecisionRule  # (declared with the other choices; imported from here too)
 
 LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
     # level, classes held equal, parameter kinds the step adds
@@ -207,6 +207,8 @@ class InvarianceResult(Presentable):
             "groups": list(self.groups),
             "alpha": self.alpha,
             "decision_rule": {"name": self.rule.value, "description": self.rule.description},
+            # ordinal fits: the steps' delta_cfi and delta_rmsea are null, and why (as compare says it)
+            "fit_index_changes_left_out": ORDINAL_FIT_CHANGE if self.steps[0].result.method.ordinal else None,
             "steps": [s.to_dict() for s in self.steps],
             "design": self.steps[0].result.design.to_dict() if self.steps[0].result.design is not None else None,
             "freed": [f.to_dict() for f in self.freed],

@@ -60,11 +60,16 @@ def test_every_step_figure_is_the_step_test(partial_ladder):
         assert f"\u03c7\u00b2({t.df_difference}) = {t.chi_square_difference:.2f}" in text
 
 
-def test_ordinal_ladders_name_thresholds_first_and_the_adjusted_difference(hs_data):
+@pytest.fixture(scope="module")
+def ordinal_ladder(hs_data):
     cut = hs_data.copy()
     for column in [f"x{i}" for i in range(1, 10)]:
         cut[column] = pd.qcut(hs_data[column], 4, labels=False) + 1
-    text = _text(invariance(THREE_FACTORS, cut, "school", ordinal="all"))
+    return invariance(THREE_FACTORS, cut, "school", ordinal="all")
+
+
+def test_ordinal_ladders_name_thresholds_first_and_the_adjusted_difference(ordinal_ladder):
+    text = _text(ordinal_ladder)
     assert "configural, thresholds (thresholds equal across groups), metric (thresholds and loadings equal" in text
     assert "thresholds before loadings as Wu & Estabrook (2016) set out" in text
     assert "Threshold invariance" in text and "Thresholds invariance" not in text
@@ -117,3 +122,31 @@ def test_a_misfitting_but_admissible_configural_step_keeps_its_closing_caveat(pa
     assert "Metric invariance held (\u03c7\u00b2(6) = 8.19" in text
     assert "tested after a step that did not hold, so they compare models already rejected" in text
 
+
+def test_ordinal_steps_carry_no_fit_index_changes_and_every_view_says_why(ordinal_ladder):
+    # found in a re-check: compare of ordinal pairs dropped the changes in CFI and RMSEA, the invariance ladder's
+    # JSON still carried them; one rule (workflows.ordinal_compare.difference_record) now serves both
+    import io
+    import json
+
+    import docx
+
+    from cfa_tool.method import ORDINAL_FIT_CHANGE
+    from cfa_tool.reporting.docx_report import report_docx
+    from cfa_tool.reporting.html_report import report_html
+    from cfa_tool.reporting.text_formats import report_markdown
+    from tests.reporting.test_fit_views import _html_text, _plain
+
+    out = json.loads(json.dumps(ordinal_ladder.to_dict()))
+    tests = [s["versus_previous"] for s in out["steps"][1:]]
+    assert tests and all(t["chi_square_difference"] > 0 for t in tests)
+    assert all(t.get("delta_cfi") is None and t.get("delta_rmsea") is None for t in tests)
+    assert out["fit_index_changes_left_out"] == ORDINAL_FIT_CHANGE
+    report = invariance_report(ordinal_ladder)
+    word = " ".join(p.text for p in docx.Document(io.BytesIO(report_docx(report))).paragraphs)
+    why = _plain("Changes in fit indices between steps are not shown: " + ORDINAL_FIT_CHANGE)
+    for name, text in {"terminal": report_text(report, 100), "HTML": _html_text(report_html(report)),
+                       "Markdown": report_markdown(report), "Word": word}.items():
+        text = _plain(text)
+        assert why in text, name
+        assert "\u0394CFI" not in text and "\u0394RMSEA" not in text, name
