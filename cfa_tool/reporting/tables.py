@@ -717,7 +717,9 @@ def item_table(result) -> ReportTable:
     if weights is not None:
         note += (f" Mean and SD weighted by {weights}" + ("; N, skewness, kurtosis and item-rest r count each row once."
                                                           if shape or rest else "."))
-    return _table("items", "Items: descriptive statistics (analysed rows)", columns, body, note,
+    title = "Items: descriptive statistics (analysed rows" + ("" if weights is None else
+                                                             f"; means and SDs weighted by {weights}") + ")"
+    return _table("items", title, columns, body, note,
                   values=([c for c, _ in columns], values))
 
 
@@ -743,7 +745,8 @@ def category_table(result, group: int = 0) -> ReportTable | None:
     label = result.groups[group].label
     where = f" in group {label}" if label is not None else ""
     weights = _weights_column(result)
-    return _table(f"categories_{group}", f"Answers per category{where} (rows analysed)",
+    return _table(f"categories_{group}", f"Answers per category{where} (rows analysed"
+                  + ("" if weights is None else ", each counted once: unweighted") + ")",
                   [("Item", "l")] + [(str(k + 1), "r") for k in range(width)], rows,
                   "Each cell: the answer value, the rows giving it and their share. Categories nobody chose do not "
                   "appear (their threshold cannot be estimated)." + ("" if weights is None else
