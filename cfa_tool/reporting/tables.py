@@ -430,37 +430,55 @@ def estimate_tables(result, group: int = 0) -> list[ReportTable]:
         if kind in ("loading", "factor_variance", "factor_covariance", "residual_variance"):
             continue
         rows = [r for r in result.estimates if r.kind == kind and r.group == label]
-        if not rows:
-            continue
-        cols = [("Variable", "l")]
-        if kind in ("residual_covariance", "threshold"):
-            cols.append(({"threshold": "Step"}.get(kind, "With"), "l"))
-        cols += [("Estimate", "r"), ("SE", "r"), ("95% CI", "r"), ("p", "r"), ("Std.", "r")]
-        marks = [row_problem(result, kind, r.variables, r.group) for r in rows]
-        if any(marks):
-            cols.append(("Problem", "l"))
-        body, numbers = [], []
-        previous = None
-        for r, mark in zip(rows, marks):
-            numbers.append(list(r.variables) + [r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
-                                                r.ci95[1], r.standardized, "yes" if r.free else "no"]
-                           + ([mark] if any(marks) else []))
-            names = list(r.variables)
-            if kind == "threshold":
-                shown = names[0] if names[0] != previous else ""
-                previous = names[0]
-                names[0] = shown
-            cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value),
-                             num(r.standardized, 2)]
-            if any(marks):
-                cells.append(mark)
-            body.append(cells)
-        value_columns = [c for c, _ in cols[:len(rows[0].variables)]] + [
-            "Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper", "Standardized", "Free"] + (
-            ["Problem"] if any(marks) else [])
-        tables.append(_table(kind + suffix, title, cols, body, flagged=tuple(i for i, m in enumerate(marks) if m),
-                             values=(value_columns, numbers)))
+        if kind == "mean":  # a factor explained by a higher-order factor has no mean parameter: an intercept
+            parts = [(kind, title, [r for r in rows if r.variables[0] not in lower], None),
+                     ("factor_intercept", DISTURBANCE_INTERCEPTS, [r for r in rows if r.variables[0] in lower],
+                      DISTURBANCE_INTERCEPTS_NOTE)]
+        else:
+            parts = [(kind, title, rows, None)]
+        tables.extend(_estimates_table(result, kind, key + suffix, heading, chosen, note)
+                      for key, heading, chosen, note in parts if chosen)
     return tables
+
+
+#: the means table's rows for factors that indicate a higher-order factor: intercepts, not means (Bollen 1989)
+DISTURBANCE_INTERCEPTS = "Intercepts of the factors explained by a higher-order factor"
+DISTURBANCE_INTERCEPTS_NOTE = ("Each is the intercept of the factor's regression on the higher-order factor (the mean of "
+                               "its disturbance), not the factor's mean: the factor's implied mean adds its loading "
+                               "times the higher-order factor's mean (Bollen 1989). Std.: over the factor's implied "
+                               "standard deviation.")
+
+
+def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: str | None) -> ReportTable:
+    """One table of parameter rows of one kind (residual covariances, intercepts, factor means, thresholds)."""
+    cols = [("Variable", "l")]
+    if kind in ("residual_covariance", "threshold"):
+        cols.append(({"threshold": "Step"}.get(kind, "With"), "l"))
+    cols += [("Estimate", "r"), ("SE", "r"), ("95% CI", "r"), ("p", "r"), ("Std.", "r")]
+    marks = [row_problem(result, kind, r.variables, r.group) for r in rows]
+    if any(marks):
+        cols.append(("Problem", "l"))
+    body, numbers = [], []
+    previous = None
+    for r, mark in zip(rows, marks):
+        numbers.append(list(r.variables) + [r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
+                                            r.ci95[1], r.standardized, "yes" if r.free else "no"]
+                       + ([mark] if any(marks) else []))
+        names = list(r.variables)
+        if kind == "threshold":
+            shown = names[0] if names[0] != previous else ""
+            previous = names[0]
+            names[0] = shown
+        cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value),
+                         num(r.standardized, 2)]
+        if any(marks):
+            cells.append(mark)
+        body.append(cells)
+    value_columns = [c for c, _ in cols[:len(rows[0].variables)]] + [
+        "Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper", "Standardized", "Free"] + (
+        ["Problem"] if any(marks) else [])
+    return _table(key, title, cols, body, note, flagged=tuple(i for i, m in enumerate(marks) if m),
+                  values=(value_columns, numbers))
 
 
 def residual_table(result, group: int = 0) -> ReportTable | None:

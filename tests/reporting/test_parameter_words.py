@@ -77,3 +77,29 @@ def test_the_invariance_ladder_names_each_group_parameter_in_words(hs_data):
     assert "the loading of x2 on visual in group Pasteur held at a bound" in text
     assert not MACHINE.search(text.replace("bound loading(visual, x2) <= 0.3", "")), MACHINE.search(text)
     assert "parameters_in_words" in json.dumps(result.to_dict())
+
+
+HIGHER = THREE_FACTORS + "factor g: visual, textual, speed\ninvariance scalar\n"
+
+
+def test_the_intercepts_of_factors_under_a_higher_order_factor_are_not_called_means(hs_data):
+    # found in a re-check: a grouped higher-order fit listed the first-order factors' intercepts (the means of their
+    # disturbances) under 'Factor means'.  Holzinger & Swineford (1939) by school, loadings and intercepts equal
+    from cfa_tool.reporting.tables import DISTURBANCE_INTERCEPTS, DISTURBANCE_INTERCEPTS_NOTE
+
+    result = cfa_tool.fit(HIGHER, hs_data, group="school")
+    report = fit_report(result)
+    means = [t for t in report.tables if t.title.startswith("Factor means")]
+    intercepts = [t for t in report.tables if t.title.startswith(DISTURBANCE_INTERCEPTS)]
+    assert [[row[0] for row in t.rows] for t in means] == [["g"], ["g"]]
+    assert [[row[0] for row in t.rows] for t in intercepts] == [["visual", "textual", "speed"]] * 2
+    pasteur = {r.variables[0]: r.estimate for r in result.estimates if r.kind == "mean" and r.group == "Pasteur"}
+    assert pasteur["g"] == 0.0 and pasteur["textual"] != 0.0  # free in the second group: the table shows them
+    shown = dict(zip((row[0] for row in intercepts[1].values), (row[1] for row in intercepts[1].values)))
+    assert shown["textual"] == pytest.approx(pasteur["textual"])
+    for name, text in {"terminal": report_text(report, 100), "HTML": _html_text(report_html(report)),
+                       "Markdown": report_markdown(report), "Word": _word_text(report_docx(report, 72))}.items():
+        text = _plain(text)
+        first = text.index(DISTURBANCE_INTERCEPTS)
+        assert _plain(DISTURBANCE_INTERCEPTS_NOTE) in text[first:], name
+        assert text.index("Factor means") < first, name  # each group's means table, then its intercepts
