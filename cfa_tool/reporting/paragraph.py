@@ -477,14 +477,15 @@ def comparison_paragraph(comparison) -> str:
     if design is not None:
         parts.append(design_sentence(first))
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
+    for name, r in zip(names, results):  # problems first: before the figures a reader might take as support
+        if r.converged and not r.admissible:
+            found = _list([p.phrase() for p in r.problems if p.kind.inadmissible])
+            parts.append(f"The solution of {label[name]} was not admissible ({found}): its fit is not evidence for it.")
     parts.append(f"Fit{statistic}: " + "; ".join(f"{label[name]}, {_fit_figures(r)}" for name, r in zip(names, results)) + ".")
     for name, r in zip(names, results):
         weak = _weak_factor_sentence(r, f"The solution of {label[name]}") if r.converged else ""
         if weak:
             parts.append(weak)
-        if r.converged and not r.admissible:
-            found = _list([p.phrase() for p in r.problems if p.kind.inadmissible])
-            parts.append(f"The solution of {label[name]} was not admissible ({found}): its fit is not evidence for it.")
     pairs: dict[tuple[str, str], list] = {}
     for t in comparison.tests:
         pairs.setdefault((t.restricted, t.general), []).append(t)
@@ -634,7 +635,7 @@ def invariance_paragraph(result, levels) -> str:
     problems = _step_problems(steps)
     if problems:  # problems first: before any step reads as held
         parts.append(problems)
-    parts.append(f"The configural model {_held(steps[0])} ({_fit_figures(first)}).")
+    parts.append(f"The configural model {_held(steps[0])}" + (f" ({_fit_figures(first)})." if first.converged else "."))
     for k, step in enumerate(steps[1:], start=1):
         name = _capital(_LEVEL_WORDS.get(step.level, step.level))
         basis = _basis(steps, k)

@@ -103,3 +103,16 @@ def test_the_intercepts_of_factors_under_a_higher_order_factor_are_not_called_me
         first = text.index(DISTURBANCE_INTERCEPTS)
         assert _plain(DISTURBANCE_INTERCEPTS_NOTE) in text[first:], name
         assert text.index("Factor means") < first, name  # each group's means table, then its intercepts
+
+
+def test_compare_names_an_inadmissible_solution_before_the_fit_figures(hs_data):
+    # the neighbour of the invariance paragraph's order: the problem comes before the figures a reader might take
+    # as support (the bound case above against the same model without the bound)
+    from cfa_tool.reporting.workflow_tables import comparison_report
+    from cfa_tool.workflows.compare import compare
+
+    report = comparison_report(compare([THREE_FACTORS, BOUND], hs_data))
+    for text in (_plain(report.paragraph), _plain(report_text(report, 100))):
+        problem = text.index("was not admissible (the loading of x2 on visual held at a bound)")
+        assert problem < text.index("Fit: ")
+        assert not MACHINE.search(text), MACHINE.search(text)
