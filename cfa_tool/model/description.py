@@ -88,31 +88,35 @@ def split_label(label: str) -> tuple[str, tuple[str, ...], str | None]:
 
 
 def parameter_words(kind: str, names: tuple[str, ...], group: str | None = None,
-                    observed: tuple[str, ...] | frozenset = ()) -> str:
+                    observed: tuple[str, ...] | frozenset | None = None, article: bool = True) -> str:
     """A parameter in the words a researcher uses: 'the loading of helpful on courtesy', 'the residual variance
     of temperature', 'the covariance of factors F1 and F2', '... in group north'.  ``kind`` is a parameter
     table kind (factor_variance, residual_covariance, ...) or a model file's (variance, covariance: then
-    ``observed`` tells an item's residual from a factor).  The one place that turns parameters into words."""
-    if kind in ("variance", "covariance"):
+    ``observed`` tells an item's residual from a factor; without it they stay 'variance' and 'covariance');
+    ``article`` False leaves out the leading 'the' (a table cell).  The one place that turns parameters into
+    words."""
+    if kind in ("variance", "covariance") and observed is not None:
         kind = ("residual_" if names and names[0] in observed else "factor_") + kind
     pair = " and ".join(names)
     if kind == "loading" and len(names) == 2:
-        text = f"the loading of {names[1]} on {names[0]}"
-    elif kind == "threshold":
-        text = f"threshold {names[1]} of {names[0]}" if len(names) == 2 else f"the thresholds of {pair}"
+        text = f"loading of {names[1]} on {names[0]}"
+    elif kind == "threshold" and len(names) == 2:
+        text, article = f"threshold {names[1]} of {names[0]}", False
     else:
-        text = {"factor_variance": f"the variance of factor {pair}",
-                "factor_covariance": f"the covariance of factors {pair}",
-                "residual_variance": f"the residual variance of {pair}",
-                "residual_covariance": f"the residual covariance of {pair}",
-                "intercept": f"the intercept of {pair}",
-                "mean": f"the mean of {pair}"}.get(kind, f"the {kind.replace('_', ' ')} of {pair}")
-    return text + (f" in group {group}" if group is not None else "")
+        text = {"factor_variance": f"variance of factor {pair}",
+                "factor_covariance": f"covariance of factors {pair}",
+                "residual_variance": f"residual variance of {pair}",
+                "residual_covariance": f"residual covariance of {pair}",
+                "intercept": f"intercept of {pair}",
+                "mean": f"mean of {pair}",
+                "threshold": f"thresholds of {pair}"}.get(kind, f"{kind.replace('_', ' ')} of {pair}")
+    return ("the " if article else "") + text + (f" in group {group}" if group is not None else "")
 
 
-def label_words(label: str) -> str:
+def label_words(label: str, article: bool = True) -> str:
     """A machine label ('residual_variance(x9) [north]') in words ('the residual variance of x9 in group north')."""
-    return parameter_words(*split_label(label))
+    kind, names, group = split_label(label)
+    return parameter_words(kind, names, group, article=article)
 
 
 def _ref_dict(ref: tuple) -> dict:

@@ -8,7 +8,7 @@ import math
 
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
-from cfa_tool.model.description import parameter_words
+from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
@@ -408,9 +408,9 @@ def invariance_report(result) -> Report:
         CONFIGURAL_ORDINAL_NOTE if ordinal else CONFIGURAL_NOTE]
     if result.freed:
         many = len(result.groups) > 2
-        rows = [[f.level, parameter_words(f.kind, f.variables), *([str(f.group)] if many else []),
+        rows = [[f.level, parameter_words(f.kind, f.variables, article=False), *([str(f.group)] if many else []),
                  num(f.score, 2)] for f in result.freed]
-        values = [[f.level, parameter_words(f.kind, f.variables), *([str(f.group)] if many else []),
+        values = [[f.level, parameter_words(f.kind, f.variables, article=False), *([str(f.group)] if many else []),
                    f.score] for f in result.freed]
         columns = [("Level", "l"), ("Parameter", "l")] + ([("Pointed to by group", "l")] if many else []) + [
             ("Score test", "r")]
@@ -760,12 +760,13 @@ def montecarlo_report(result) -> Report:
              f"({100 * result.converged / result.replications:.1f}%); {_inadmissible_phrase([result])}."
              ] + _ordinal_power_lines(result)
     if result.defaulted:
-        lines.append("Population values not given in the model file took defaults: " + ", ".join(result.defaulted))
+        lines.append("Population values not given in the model file took defaults: "
+                     + ", ".join(label_words(label) for label in result.defaulted))
     lines += not_carried_line(result.not_carried)
     # what decides the plan first: power, then whether intervals and estimates can be trusted at this N
-    rows = [[p.label, unit(p.power, 2), f"{100 * p.coverage:.1f}%", _percent(p.relative_bias), _percent(p.se_bias)]
-            for p in result.parameters]
-    values = [[p.label, p.power, p.coverage, p.relative_bias, p.se_bias] for p in result.parameters]
+    rows = [[label_words(p.label, article=False), unit(p.power, 2), f"{100 * p.coverage:.1f}%",
+             _percent(p.relative_bias), _percent(p.se_bias)] for p in result.parameters]
+    values = [[label_words(p.label, article=False), p.power, p.coverage, p.relative_bias, p.se_bias] for p in result.parameters]
     table = _table("parameters", "Per parameter", [("Parameter", "l"), ("Power", "r"), ("Coverage", "r"),
                                                    ("Estimate bias %", "r"), ("SE bias %", "r")], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha {unit(result.alpha, 2)}; "
@@ -788,10 +789,12 @@ def power_curve_report(curve) -> Report:
                   f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {r.n_obs}"
                                                            for r in curve.results) + " of the converged replications."]
     if first.defaulted:
-        lines.append("Population values not given in the model file took defaults: " + ", ".join(first.defaulted))
+        lines.append("Population values not given in the model file took defaults: "
+                     + ", ".join(label_words(label) for label in first.defaulted))
     lines += not_carried_line(first.not_carried)
-    rows = [[p.label, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, p in enumerate(first.parameters)]
-    values = [[p.label, *(r.parameters[k].power for r in curve.results)] for k, p in enumerate(first.parameters)]
+    rows = [[label_words(p.label, article=False), *(unit(r.parameters[k].power, 2) for r in curve.results)]
+            for k, p in enumerate(first.parameters)]
+    values = [[label_words(p.label, article=False), *(r.parameters[k].power for r in curve.results)] for k, p in enumerate(first.parameters)]
     table = _table("power_by_sample_size", "Power per parameter and sample size",
                    [("Parameter", "l")] + [(f"N = {n}", "r") for n in curve.sample_sizes], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha "

@@ -44,6 +44,8 @@ def test_every_kind_of_parameter_in_words():
     assert parameter_words("variance", ("F1",), observed=("x1",)) == "the variance of factor F1"
     assert split_label("loading(courtesy, helpful) [south]") == ("loading", ("courtesy", "helpful"), "south")
     assert label_words("residual_variance(x9) [Pasteur]") == "the residual variance of x9 in group Pasteur"
+    # a label that does not say whether a variance is an item's residual or a factor's stays neutral
+    assert label_words("covariance(x1, x2)", article=False) == "covariance of x1 and x2"
 
 
 @pytest.fixture(scope="module")
@@ -116,3 +118,19 @@ def test_compare_names_an_inadmissible_solution_before_the_fit_figures(hs_data):
         problem = text.index("was not admissible (the loading of x2 on visual held at a bound)")
         assert problem < text.index("Fit: ")
         assert not MACHINE.search(text), MACHINE.search(text)
+
+
+def test_the_power_simulation_tables_name_parameters_in_words():
+    # the simulation's labels are the parameter table's free labels ('loading(f, y2)'); its views show words
+    from cfa_tool.reporting.workflow_tables import montecarlo_report
+    from cfa_tool.workflows.montecarlo import MonteCarloPower, ParameterPower
+
+    rows = tuple(ParameterPower(label, 0.5, 0.5, 0.0, 0.1, 0.1, 0.95, 0.9)
+                 for label in ("loading(f, y2)", "covariance(f, g)", "variance(y3)"))
+    result = MonteCarloPower(200, 500, 500, 0.05, 1, rows, ("loading(g, y7)",))
+    report = montecarlo_report(result)
+    assert [row[0] for row in report.tables[0].rows] == ["loading of y2 on f", "covariance of f and g", "variance of y3"]
+    text = _plain(report_text(report, 100))
+    assert "took defaults: the loading of y7 on g" in text
+    assert not MACHINE.search(text) and "loading(" not in text and "covariance(" not in text
+    assert result.to_dict()["parameters"][0]["label"] == "loading(f, y2)"  # the JSON keeps the key
