@@ -571,7 +571,9 @@ def _held(step, basis: str = "") -> str:
 def _basis(steps, k: int) -> str:
     """The first step before step ``k`` whose estimation did not converge or whose solution is not admissible,
     in words ('' when there is none: a step after one that merely misfits is marked by the closing sentence)."""
-    failed = next((s for s in steps[:k] if not s.result.converged or not s.result.admissible), None)
+    from cfa_tool.workflows.invariance import unsound_basis  # an invariance ladder's: loaded with one
+
+    failed = unsound_basis(steps, k)
     if failed is None:
         return ""
     return f"the {failed.level} step, which {'did not converge' if not failed.result.converged else 'was not admissible'}"

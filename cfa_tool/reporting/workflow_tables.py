@@ -298,6 +298,12 @@ INADMISSIBLE_VERDICT_NOTE = ("'inadmissible': the step's solution is not admissi
                              "does not hold: it cannot show that invariance holds, whatever its fit.")
 
 
+#: a step that met its test but rests on a step that did not converge or is not admissible (the paragraph's words)
+TEST_MET = "test met"
+TEST_MET_NOTE = (f"'{TEST_MET}': the step met its test but rests on a step whose estimation did not converge or whose "
+                 f"solution is not admissible, so it cannot be read as held.")
+
+
 def _verdict(holds: bool | None, result) -> str:
     """A step's 'Holds' cell: an inadmissible solution says why it does not hold."""
     if holds:
@@ -344,6 +350,8 @@ def _declared_note(steps) -> str:
 
 
 def invariance_report(result) -> Report:
+    from cfa_tool.workflows.invariance import STOP_HOLDS, unsound_basis  # the ladder's own, loaded with it
+
     # two narrow tables (each level's own fit; each step against the one before) read in 80 columns;
     # a partially invariant step shows first with every equality, then with the freed ones
     levels, level_values, flagged = [], [], []
@@ -370,7 +378,8 @@ def invariance_report(result) -> Report:
         level_values.append([label, *values, _admissible_cell(step.result)])
         if step.result.converged and not step.result.admissible:
             flagged.append(len(levels) - 1)
-        verdict = _verdict(step.holds, step.result) + (" *" if step.conditional else "")
+        verdict = (TEST_MET if step.holds and unsound_basis(result.steps, k) is not None
+                   else _verdict(step.holds, step.result)) + (" *" if step.conditional else "")
         if step.versus_previous is not None:
             cells, values = _step_cells(step.versus_previous, step.delta_srmr)
             steps.append([label, *cells, verdict])
@@ -396,6 +405,8 @@ def invariance_report(result) -> Report:
                [("Level", "l"), ("Difference (df)", "r"), ("p", "r"), *delta_columns, ("Holds", "l")], steps,
                " ".join(note for note, shown in (
                    (INADMISSIBLE_VERDICT_NOTE, any(not s.result.admissible for s in result.steps)),
+                   (TEST_MET_NOTE, any(s.holds and unsound_basis(result.steps, k) is not None
+                                       for k, s in enumerate(result.steps))),
                    ("* tested after a step that did not hold: the comparison is between models already rejected.",
                     any(step.conditional for step in result.steps))) if shown) or None,
                values=(["Level", "Chi-square difference", "df difference", "p", *delta_values, "Holds"], step_values)),
@@ -423,7 +434,7 @@ def invariance_report(result) -> Report:
     if declared:
         notes.append(declared)
     for step in result.steps:
-        if step.stopped and (step.partial or step.stopped != "the step holds"):
+        if step.stopped and (step.partial or step.stopped != STOP_HOLDS):
             freed_words = f"freed {len(step.freed)} parameter{'s' if len(step.freed) != 1 else ''} and " \
                 if step.partial else ""
             notes.append(f"The search at the {step.level} step {freed_words}stopped: {step.stopped}.")

@@ -56,7 +56,7 @@ SRMR_GUIDE_LATER = 0.010
 
 
 #: why the partial-invariance search stopped at a step
-STOP_HOLDS = "the step holds"
+STOP_HOLDS = "the step met its test"
 STOP_OFF = "no search was asked for"
 STOP_NOTHING_LEFT = ("no equality left that may be freed (one loading and one intercept per factor stay equal, so "
                      "that factor scales and means remain comparable)")
@@ -380,6 +380,13 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     differences, latent_note, not_estimated = latent_differences(steps)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + tuple(warnings), rule,
                             differences, latent_note, not_estimated, tuple(notes))
+
+
+def unsound_basis(steps, k: int):
+    """The first step before step ``k`` whose estimation did not converge or whose solution is not admissible
+    (None when there is none): a step resting on it cannot show that invariance holds, even when it meets its
+    test.  The one rule the ladder's 'Holds' cells and the methods paragraph follow."""
+    return next((s for s in steps[:k] if not s.result.converged or not s.result.admissible), None)
 
 
 def _step_holds(rule: DecisionRule, test: DifferenceTest, alpha: float, result: FitResult, general: FitResult,

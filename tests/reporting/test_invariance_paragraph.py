@@ -127,6 +127,11 @@ def test_an_inadmissible_configural_step_comes_before_any_step_that_met_its_test
         first = rendered.index("The solution of the configural model was not admissible")
         assert first < rendered.index("met its test"), name
         assert "Metric invariance held" not in rendered, name
+    # the ladder's cells agree: such a step met its test, it is not marked as held (the rule: unsound_basis)
+    steps = next(t for t in report.tables if t.key == "steps")
+    assert [row[-1] for row in steps.rows][:2] == ["inadmissible", "test met *"]
+    assert "'test met': the step met its test but rests on a step" in steps.note
+    assert "stopped: the step met its test" in " ".join(report.notes)
     assert "the intercept of x3 and the intercept of x7" in text  # what the search freed, in words
 
 
