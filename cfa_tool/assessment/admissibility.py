@@ -17,6 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
 
@@ -58,7 +59,8 @@ class ProblemKind(enum.Enum):
 @dataclass(frozen=True)
 class Problem:
     """One problem of a solution.  ``parameters`` are parameter labels as the parameter table writes them
-    (``residual_variance(x9)``, ``factor_covariance(F1, F2)``, ``loading(F1, x1)``); ``group`` names the
+    (``residual_variance(x9)``, ``factor_covariance(F1, F2)``, ``loading(F1, x1)``): stable keys for
+    programs; :meth:`parameter_words` gives them in the words every view prints.  ``group`` names the
     group when the model has several."""
 
     kind: ProblemKind
@@ -71,7 +73,11 @@ class Problem:
     def to_dict(self) -> dict:
         value = None if self.value is None or not np.isfinite(self.value) else float(self.value)
         return {"kind": self.kind.value, "inadmissible": self.kind.inadmissible, "parameters": list(self.parameters),
-                "value": value, "group": self.group, "explanation": self.explanation, "advice": self.advice}
+                "parameters_in_words": list(self.parameter_words()), "value": value, "group": self.group, "explanation": self.explanation, "advice": self.advice}
+
+    def parameter_words(self) -> tuple[str, ...]:
+        """The parameters in plain words ('the loading of helpful on courtesy in group north')."""
+        return tuple(label_words(label) for label in self.parameters)
 
     def line(self) -> str:
         """The problem as the views list it: the explanation, then what to try."""
@@ -91,7 +97,7 @@ class Problem:
             K.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE: "a factor covariance matrix that is not positive definite",
             K.RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE: "a residual covariance matrix that is not positive definite",
             K.STANDARDIZED_LOADING_ABOVE_ONE: f"a standardized loading of {names[-1] if names else ''} above 1 ({v})",
-            K.ON_BOUND: f"{', '.join(self.parameters)} held at a bound",
+            K.ON_BOUND: f"{', '.join(self.parameter_words())} held at a bound",
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
             K.SMALL_EFFECTIVE_SAMPLE: f"an effective sample size of only {v} under the weights",
@@ -124,15 +130,16 @@ class Problem:
 
 def _names(label: str) -> tuple[str, ...]:
     """The variables of a parameter label such as 'factor_covariance(F1, F2)' (a group suffix dropped)."""
-    if label.endswith("]") and " [" in label:
-        label = label[:-1].rpartition(" [")[0]
-    rest = label.partition("(")[2]
-    return tuple(n.strip() for n in rest.rstrip(")").split(",")) if rest else ()
+    return split_label(label)[1]
 
 
 HEYWOOD_ADVICE = ("Look for what the model leaves out near it (a residual covariance or cross-loading the modification "
                   "indices point to), for outlying rows, and whether the sample is small for the model; do not simply fix "
                   "the value at a boundary to hide the problem.")
+
+
+def _capital(text: str) -> str:
+    return text[:1].upper() + text[1:]
 
 
 def _fmt(value: float) -> str:
@@ -231,7 +238,7 @@ def bound_problems(labels: tuple[str, ...], theta: np.ndarray, lower: np.ndarray
             if np.isfinite(limit) and abs(theta[k] - limit) <= 1e-8 * max(1.0, abs(limit)):
                 out.append(Problem(
                     ProblemKind.ON_BOUND, (label,), float(theta[k]),
-                    f"{label} is held at its {word} bound ({limit:g}): without the bound the estimate would lie beyond it, "
+                    f"{_capital(label_words(label))} is held at its {word} bound ({limit:g}): without the bound the estimate would lie beyond it, "
                     f"so the reported fit and standard errors describe a restricted solution.",
                     "Report the bound; the standard errors and tests near a bound are not reliable (the estimate's "
                     "sampling distribution is cut off there).", None))
@@ -248,7 +255,7 @@ def identification_problems(labels: tuple[str, ...], se: np.ndarray, estimates: 
         return []
     return [Problem(
         ProblemKind.EMPIRICALLY_UNDERIDENTIFIED, tuple(labels[k] for k in weak), float(np.max(se[weak])),
-        "The data barely determine " + ", ".join(labels[k] for k in weak[:5]) + (" and others" if len(weak) > 5 else "")
+        "The data barely determine " + ", ".join(label_words(labels[k]) for k in weak[:5]) + (" and others" if len(weak) > 5 else "")
         + ": their standard errors are huge, so the model is close to not identified with these data.",
         "Check factors with two indicators (they need a clear correlation with another factor) and loadings near zero; "
         "fix or drop what the data cannot inform.", None)]

@@ -76,6 +76,49 @@ class ModelDescription:
         }
 
 
+def split_label(label: str) -> tuple[str, tuple[str, ...], str | None]:
+    """A parameter's machine label as the parameter table writes it ('loading(F1, x1)',
+    'residual_variance(x9) [north]') split into its kind, its variables and its group (None without one)."""
+    group = None
+    if label.endswith("]") and " [" in label:
+        label, _, group = label[:-1].rpartition(" [")
+    kind, _, rest = label.partition("(")
+    names = tuple(n.strip() for n in rest.rstrip(")").split(",")) if rest else ()
+    return kind.strip(), names, group
+
+
+def parameter_words(kind: str, names: tuple[str, ...], group: str | None = None,
+                    observed: tuple[str, ...] | frozenset | None = None, article: bool = True) -> str:
+    """A parameter in the words a researcher uses: 'the loading of helpful on courtesy', 'the residual variance
+    of temperature', 'the covariance of factors F1 and F2', '... in group north'.  ``kind`` is a parameter
+    table kind (factor_variance, residual_covariance, ...) or a model file's (variance, covariance: then
+    ``observed`` tells an item's residual from a factor; without it they stay 'variance' and 'covariance');
+    ``article`` False leaves out the leading 'the' (a table cell).  The one place that turns parameters into
+    words."""
+    if kind in ("variance", "covariance") and observed is not None:
+        kind = ("residual_" if names and names[0] in observed else "factor_") + kind
+    pair = " and ".join(names)
+    if kind == "loading" and len(names) == 2:
+        text = f"loading of {names[1]} on {names[0]}"
+    elif kind == "threshold" and len(names) == 2:
+        text, article = f"threshold {names[1]} of {names[0]}", False
+    else:
+        text = {"factor_variance": f"variance of factor {pair}",
+                "factor_covariance": f"covariance of factors {pair}",
+                "residual_variance": f"residual variance of {pair}",
+                "residual_covariance": f"residual covariance of {pair}",
+                "intercept": f"intercept of {pair}",
+                "mean": f"mean of {pair}",
+                "threshold": f"thresholds of {pair}"}.get(kind, f"{kind.replace('_', ' ')} of {pair}")
+    return ("the " if article else "") + text + (f" in group {group}" if group is not None else "")
+
+
+def label_words(label: str, article: bool = True) -> str:
+    """A machine label ('residual_variance(x9) [north]') in words ('the residual variance of x9 in group north')."""
+    kind, names, group = split_label(label)
+    return parameter_words(kind, names, group, article=article)
+
+
 def _ref_dict(ref: tuple) -> dict:
     kind, names, group = ref
     return {"kind": kind, "variables": list(names), "group": group}

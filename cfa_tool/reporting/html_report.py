@@ -26,6 +26,19 @@ ul.warnings li{margin:.3em 0}
 .problems li{margin:.35em 0} tr.problem td{background:#fdecea;color:#8c1d18;font-weight:bold}
 td.faint{color:#aaa}
 table.matrix td,table.matrix th{padding:.15em .35em} table.matrix td.l{white-space:nowrap}
+div.wide{overflow-x:auto;max-width:100%} table.matrix{font-size:.8em}
+table.matrix td:first-child{position:sticky;left:0;background:#fff}
+@media print{
+body{max-width:none;margin:0;padding:0;font-size:10pt;line-height:1.3}
+body>h2~h2{break-before:page} h1,h2,caption{break-after:avoid}
+tr,li,figure,.problems,.caution,.summary{break-inside:avoid} thead{display:table-header-group}
+p,li,pre,.summary{white-space:pre-wrap;overflow-wrap:anywhere} pre{overflow:visible}
+table{font-size:8.5pt} .diagram{overflow:visible;border:none;padding:0} .diagram img{max-width:100%;height:auto}
+div.wide{overflow:visible;page:wide} table.matrix{font-size:6pt} table.matrix td,table.matrix th{padding:0 .12em}
+table.matrix td:first-child{position:static} td.heat{min-width:0}
+*{-webkit-print-color-adjust:exact;print-color-adjust:exact}
+}
+@page wide{size:A4 landscape;margin:10mm}
 """
 
 
@@ -45,8 +58,10 @@ def table_html(table: ReportTable) -> str:
     note = " ".join(text for text in (table.note, T.HEAT_LEGEND if table.heat else "") if text)
     note = f'<p class="note">{esc(note)}</p>' if note else ""
     matrix = ' class="matrix"' if table.matrix else ""  # a matrix of the items: compact cells
-    return (f'<table id="{esc(table.key)}"{matrix}><caption>{esc(table.title)}</caption><thead><tr>{head}</tr></thead>'
-            f"<tbody>{body}</tbody></table>{note}")
+    html = (f'<table id="{esc(table.key)}"{matrix}><caption>{esc(table.title)}</caption><thead><tr>{head}</tr></thead>'
+            f"<tbody>{body}</tbody></table>")
+    # a matrix scrolls inside its own box on screen (its item column kept in view) and prints on a landscape page
+    return (f'<div class="wide">{html}</div>' if table.matrix else html) + note
 
 
 def notice_html(notice: T.ProblemNotice | None) -> str:

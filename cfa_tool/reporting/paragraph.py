@@ -18,6 +18,7 @@ from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Inf
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
+from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.numbers import index_text, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
 
@@ -119,18 +120,9 @@ def _structure(result, d) -> str:
 
 
 def _parameter(ref: tuple, d) -> str:
-    """A parameter in words: 'the loading of x2 on visual', 'the residual variance of x5'."""
+    """A model file's parameter (kind, names, group) in words: 'the loading of x2 on visual'."""
     kind, names, group = ref
-    residual = "residual " if names and names[0] in d.indicators else ""
-    text = {
-        "loading": lambda: f"the loading of {names[1]} on {names[0]}" if len(names) == 2 else f"a loading of {names}",
-        "variance": lambda: f"the {residual}variance of {names[0]}",
-        "covariance": lambda: f"the {residual}covariance of {names[0]} and {names[1]}",
-        "intercept": lambda: f"the intercept of {names[0]}",
-        "mean": lambda: f"the mean of {names[0]}",
-        "threshold": lambda: f"the thresholds of {names[0]}",
-    }.get(kind, lambda: f"{kind}({', '.join(names)})")()
-    return text + (f" in group {group}" if group is not None else "")
+    return parameter_words(kind, tuple(names), group, d.indicators)
 
 
 def _scale_sentence(d) -> str:
@@ -495,14 +487,15 @@ def comparison_paragraph(comparison) -> str:
     if design is not None:
         parts.append(design_sentence(first))
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
+    for name, r in zip(names, results):  # problems first: before the figures a reader might take as support
+        if r.converged and not r.admissible:
+            found = _list([p.phrase() for p in r.problems if p.kind.inadmissible])
+            parts.append(f"The solution of {label[name]} was not admissible ({found}): its fit is not evidence for it.")
     parts.append(f"Fit{statistic}: " + "; ".join(f"{label[name]}, {_fit_figures(r)}" for name, r in zip(names, results)) + ".")
     for name, r in zip(names, results):
         weak = _weak_factor_sentence(r, f"The solution of {label[name]}") if r.converged else ""
         if weak:
             parts.append(weak)
-        if r.converged and not r.admissible:
-            found = _list([p.phrase() for p in r.problems if p.kind.inadmissible])
-            parts.append(f"The solution of {label[name]} was not admissible ({found}): its fit is not evidence for it.")
     pairs: dict[tuple[str, str], list] = {}
     for t in comparison.tests:
         pairs.setdefault((t.restricted, t.general), []).append(t)
@@ -576,13 +569,45 @@ def _step_figures(step) -> str:
     return text
 
 
-def _held(step) -> str:
-    """Whether an invariance step held, in words: an inadmissible solution says so."""
-    if step.holds:
-        return "held"
-    if step.result.converged and not step.result.admissible:
+def _held(step, basis: str = "") -> str:
+    """Whether an invariance step held, in words, problems first: a search that did not converge or an
+    inadmissible solution says so, and a step that met its test but rests on a step that did not hold
+    (``basis``: that step in words) is not called held."""
+    if not step.result.converged:
+        return "could not be judged: its estimation did not converge"
+    if not step.result.admissible:
         return "did not hold: its solution was not admissible"
-    return "did not hold"
+    if step.holds and basis:
+        return f"cannot be read as held, though it met its test: it rests on {basis}"
+    return "held" if step.holds else "did not hold"
+
+
+def _basis(steps, k: int) -> str:
+    """The first step before step ``k`` whose estimation did not converge or whose solution is not admissible,
+    in words ('' when there is none: a step after one that merely misfits is marked by the closing sentence)."""
+    from cfa_tool.workflows.invariance import unsound_basis  # an invariance ladder's: loaded with one
+
+    failed = unsound_basis(steps, k)
+    if failed is None:
+        return ""
+    return f"the {failed.level} step, which {'did not converge' if not failed.result.converged else 'was not admissible'}"
+
+
+def _step_problems(steps) -> str:
+    """The steps whose estimation did not converge or whose solution is not admissible, in one sentence that
+    comes before any step's result ('' when there are none)."""
+    clauses = []
+    for step in steps:
+        if not step.result.converged:
+            clauses.append(f"the estimation of the {step.level} model did not converge")
+        elif not step.result.admissible:
+            found = _list([p.phrase() for p in step.result.problems if p.kind.inadmissible])
+            clauses.append(f"the solution of the {step.level} model was not admissible ({found})")
+    if not clauses:
+        return ""
+    return (f"{_capital(_list(clauses))}: {'such a step' if len(clauses) == 1 else 'such steps'} and the steps "
+            f"resting on {'it' if len(clauses) == 1 else 'them'} cannot show that invariance holds, whatever "
+            f"their fit.")
 
 
 def invariance_paragraph(result, levels) -> str:
@@ -623,37 +648,44 @@ def invariance_paragraph(result, levels) -> str:
                  "RMSEA \u2264 .06, SRMR \u2264 .08; Hu & Bentler, 1999); each later model by "
                  f"{rule}" + (f", the difference test being {_list([m.phrase for m in methods])}" if methods else "")
                  + ".")
-    parts.append(f"The configural model {_held(steps[0])} ({_fit_figures(first)}).")
+    problems = _step_problems(steps)
+    if problems:  # problems first: before any step reads as held
+        parts.append(problems)
+    parts.append(f"The configural model {_held(steps[0])}" + (f" ({_fit_figures(first)})." if first.converged else "."))
     for k, step in enumerate(steps[1:], start=1):
         name = _capital(_LEVEL_WORDS.get(step.level, step.level))
+        basis = _basis(steps, k)
         declared = _list([_parameter((r.kind, r.names, r.group), d) for r in step.declared]) if d is not None else \
             _list([str(r) for r in step.declared])
         earlier = [(f, s.level) for s in steps[1:k] for f in s.freed]  # freed by the search before: still free
         if earlier and not step.partial:
-            kept = _list([f"the {f.kind.replace('_', ' ')} of {', '.join(f.variables)} (freed at the {level} step)"
+            kept = _list([f"{parameter_words(f.kind, f.variables)} (freed at the {level} step)"
                           for f, level in earlier])
             extra = f" and {declared} not held equal as the model file declares" if step.declared else ""
-            parts.append(f"{name} invariance, partial with {kept} still free{extra}, {_held(step)} "
+            parts.append(f"{name} invariance, partial with {kept} still free{extra}, {_held(step, basis)} "
                          f"({_step_figures(step)}).")
         elif step.declared and not step.partial:
             parts.append(f"{name} invariance, partial with {declared} not held equal across groups as the model file "
-                         f"declares, {_held(step)} ({_step_figures(step)}).")
+                         f"declares, {_held(step, basis)} ({_step_figures(step)}).")
         elif step.partial:
             full = step.full_test
             with_all = (f"{CHI}({full.df_difference}) = {full.chi_square_difference:.2f}, {_p(full.p_value)}"
                         if full is not None and not full.not_computed else "no difference statistic")
-            freed = _list([f"the {f.kind.replace('_', ' ')} of {', '.join(f.variables)}" for f in step.freed])
-            state = "held" if step.holds else "still did not hold" if step.result.admissible else _held(step)
+            freed = _list([parameter_words(f.kind, f.variables) for f in step.freed])
+            state = ("still did not hold" if not step.holds and step.result.admissible else
+                     "held" if step.holds and not basis else "met its test" if step.holds else _held(step, basis))
+            after = f" but cannot be read as held: it rests on {basis}" if step.holds and basis else ""
             others = f"with {declared} not held equal as the model file declares and every other equality" \
                 if step.declared else "with every equality"
             if earlier:
                 others += " but those freed at earlier steps"
             parts.append(f"{name} invariance did not hold {others} ({with_all}); after freeing {freed}, "
                          f"chosen one at a time by score tests (a data-driven search that capitalises on chance and "
-                         f"needs confirmation in new data), it {state} as partial invariance ({_step_figures(step)}).")
+                         f"needs confirmation in new data), it {state} as partial invariance ({_step_figures(step)}){after}.")
         else:
-            parts.append(f"{name} invariance {_held(step)} ({_step_figures(step)}).")
-    conditional = [s.level for s in steps if s.conditional]
+            parts.append(f"{name} invariance {_held(step, basis)} ({_step_figures(step)}).")
+    # a step that held after an inadmissible or unconverged one says so above
+    conditional = [s.level for k, s in enumerate(steps) if s.conditional and not (s.holds and _basis(steps, k))]
     if conditional:
         parts.append(f"The {_list(conditional)} step{'s were' if len(conditional) > 1 else ' was'} tested after a step "
                      f"that did not hold, so {'they compare' if len(conditional) > 1 else 'it compares'} models "
@@ -661,9 +693,14 @@ def invariance_paragraph(result, levels) -> str:
     if result.latent_differences:
         diffs = "; ".join(f"{x.factor} in {x.group}, {num(x.mean, 2)} (SE = {num(x.se, 2)}, {_p(x.p_value)}, "
                           f"d = {num(x.standardized, 2)})" for x in result.latent_differences)
-        parts.append(f"Latent mean differences from the "
-                     f"{'partially invariant ' if any(s.partly_equal for s in steps if s.level != 'strict') else ''}"
-                     f"scalar model, against {result.groups[0]} (d: over the pooled latent standard deviation): {diffs}.")
+        scalar = next(k for k, s in enumerate(steps) if s.level == "scalar")
+        basis = _basis(steps, scalar)
+        source = (f"atent mean differences from the "
+                  f"{'partially invariant ' if any(s.partly_equal for s in steps if s.level != 'strict') else ''}"
+                  f"scalar model")
+        against = f"against {result.groups[0]} (d: over the pooled latent standard deviation): {diffs}."
+        parts.append(f"Resting on {basis}, the l{source} cannot be read as established; {against}" if basis else
+                     f"L{source}, {against}")
         totals = list(dict.fromkeys(x.factor for x in result.latent_differences if x.total))
         if totals:
             parts.append(f"For {_list(totals)}, explained by a higher-order factor, these are the total means and "

@@ -137,9 +137,9 @@ def problem_table(result) -> ReportTable | None:
     notice = problem_notice(result)
     if notice is None:
         return None
-    rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameters),
+    rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()),
              "" if p.value is None else num(p.value), p.group or "", p.explanation, p.advice] for p in result.problems]
-    values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameters), p.value, p.group or "",
+    values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()), p.value, p.group or "",
                p.explanation, p.advice] for p in result.problems]
     columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
                ("Explanation", "l"), ("What to try", "l")]
@@ -430,37 +430,55 @@ def estimate_tables(result, group: int = 0) -> list[ReportTable]:
         if kind in ("loading", "factor_variance", "factor_covariance", "residual_variance"):
             continue
         rows = [r for r in result.estimates if r.kind == kind and r.group == label]
-        if not rows:
-            continue
-        cols = [("Variable", "l")]
-        if kind in ("residual_covariance", "threshold"):
-            cols.append(({"threshold": "Step"}.get(kind, "With"), "l"))
-        cols += [("Estimate", "r"), ("SE", "r"), ("95% CI", "r"), ("p", "r"), ("Std.", "r")]
-        marks = [row_problem(result, kind, r.variables, r.group) for r in rows]
-        if any(marks):
-            cols.append(("Problem", "l"))
-        body, numbers = [], []
-        previous = None
-        for r, mark in zip(rows, marks):
-            numbers.append(list(r.variables) + [r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
-                                                r.ci95[1], r.standardized, "yes" if r.free else "no"]
-                           + ([mark] if any(marks) else []))
-            names = list(r.variables)
-            if kind == "threshold":
-                shown = names[0] if names[0] != previous else ""
-                previous = names[0]
-                names[0] = shown
-            cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value),
-                             num(r.standardized, 2)]
-            if any(marks):
-                cells.append(mark)
-            body.append(cells)
-        value_columns = [c for c, _ in cols[:len(rows[0].variables)]] + [
-            "Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper", "Standardized", "Free"] + (
-            ["Problem"] if any(marks) else [])
-        tables.append(_table(kind + suffix, title, cols, body, flagged=tuple(i for i, m in enumerate(marks) if m),
-                             values=(value_columns, numbers)))
+        if kind == "mean":  # a factor explained by a higher-order factor has no mean parameter: an intercept
+            parts = [(kind, title, [r for r in rows if r.variables[0] not in lower], None),
+                     ("factor_intercept", DISTURBANCE_INTERCEPTS, [r for r in rows if r.variables[0] in lower],
+                      DISTURBANCE_INTERCEPTS_NOTE)]
+        else:
+            parts = [(kind, title, rows, None)]
+        tables.extend(_estimates_table(result, kind, key + suffix, heading, chosen, note)
+                      for key, heading, chosen, note in parts if chosen)
     return tables
+
+
+#: the means table's rows for factors that indicate a higher-order factor: intercepts, not means (Bollen 1989)
+DISTURBANCE_INTERCEPTS = "Intercepts of the factors explained by a higher-order factor"
+DISTURBANCE_INTERCEPTS_NOTE = ("Each is the intercept of the factor's regression on the higher-order factor (the mean of "
+                               "its disturbance), not the factor's mean: the factor's implied mean adds its loading "
+                               "times the higher-order factor's mean (Bollen 1989). Std.: over the factor's implied "
+                               "standard deviation.")
+
+
+def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: str | None) -> ReportTable:
+    """One table of parameter rows of one kind (residual covariances, intercepts, factor means, thresholds)."""
+    cols = [("Variable", "l")]
+    if kind in ("residual_covariance", "threshold"):
+        cols.append(({"threshold": "Step"}.get(kind, "With"), "l"))
+    cols += [("Estimate", "r"), ("SE", "r"), ("95% CI", "r"), ("p", "r"), ("Std.", "r")]
+    marks = [row_problem(result, kind, r.variables, r.group) for r in rows]
+    if any(marks):
+        cols.append(("Problem", "l"))
+    body, numbers = [], []
+    previous = None
+    for r, mark in zip(rows, marks):
+        numbers.append(list(r.variables) + [r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
+                                            r.ci95[1], r.standardized, "yes" if r.free else "no"]
+                       + ([mark] if any(marks) else []))
+        names = list(r.variables)
+        if kind == "threshold":
+            shown = names[0] if names[0] != previous else ""
+            previous = names[0]
+            names[0] = shown
+        cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value),
+                         num(r.standardized, 2)]
+        if any(marks):
+            cells.append(mark)
+        body.append(cells)
+    value_columns = [c for c, _ in cols[:len(rows[0].variables)]] + [
+        "Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper", "Standardized", "Free"] + (
+        ["Problem"] if any(marks) else [])
+    return _table(key, title, cols, body, note, flagged=tuple(i for i, m in enumerate(marks) if m),
+                  values=(value_columns, numbers))
 
 
 def residual_table(result, group: int = 0) -> ReportTable | None:
@@ -717,7 +735,9 @@ def item_table(result) -> ReportTable:
     if weights is not None:
         note += (f" Mean and SD weighted by {weights}" + ("; N, skewness, kurtosis and item-rest r count each row once."
                                                           if shape or rest else "."))
-    return _table("items", "Items: descriptive statistics (analysed rows)", columns, body, note,
+    title = "Items: descriptive statistics (analysed rows" + ("" if weights is None else
+                                                             f"; means and SDs weighted by {weights}") + ")"
+    return _table("items", title, columns, body, note,
                   values=([c for c, _ in columns], values))
 
 
@@ -743,7 +763,8 @@ def category_table(result, group: int = 0) -> ReportTable | None:
     label = result.groups[group].label
     where = f" in group {label}" if label is not None else ""
     weights = _weights_column(result)
-    return _table(f"categories_{group}", f"Answers per category{where} (rows analysed)",
+    return _table(f"categories_{group}", f"Answers per category{where} (rows analysed"
+                  + ("" if weights is None else ", each counted once: unweighted") + ")",
                   [("Item", "l")] + [(str(k + 1), "r") for k in range(width)], rows,
                   "Each cell: the answer value, the rows giving it and their share. Categories nobody chose do not "
                   "appear (their threshold cannot be estimated)." + ("" if weights is None else

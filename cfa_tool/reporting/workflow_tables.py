@@ -8,6 +8,7 @@ import math
 
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
+from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
@@ -273,8 +274,8 @@ CONFIGURAL_GUIDE = ("The configural model holds when it fits by the guide values
 CONFIGURAL_NOTE = (f"{CONFIGURAL_GUIDE} Change-in-fit guides are common practice: CFI falling by no more than .010 "
                    "(Cheung & Rensvold 2002), RMSEA rising by less than .015, SRMR by less than .030 for loadings and "
                    ".010 after (Chen 2007). All guides are conventions, not laws.")
-CONFIGURAL_ORDINAL_NOTE = (f"{CONFIGURAL_GUIDE} Changes in fit indices between steps are not shown with ordinal items "
-                           "(see above). The guides are conventions, not laws.")
+CONFIGURAL_ORDINAL_NOTE = (f"{CONFIGURAL_GUIDE} Changes in fit indices between steps are not shown: "
+                           f"{ORDINAL_FIT_CHANGE}. The guides are conventions, not laws.")
 ADJUSTED_NOTE = (f"Ordinal items: chi-square, CFI and RMSEA come from the {FitTest.SCALE_SHIFTED.label} statistic, and "
                  f"each difference test is the {DifferenceMethod.SCALE_SHIFTED}. The adjusted statistic's "
                  f"{FitTest.SCALE_SHIFTED.correction} are estimated anew for each model, so it can fall when constraints "
@@ -299,6 +300,12 @@ def _other_differences(steps) -> str:
 
 INADMISSIBLE_VERDICT_NOTE = ("'inadmissible': the step's solution is not admissible (see the problems above), so it "
                              "does not hold: it cannot show that invariance holds, whatever its fit.")
+
+
+#: a step that met its test but rests on a step that did not converge or is not admissible (the paragraph's words)
+TEST_MET = "test met"
+TEST_MET_NOTE = (f"'{TEST_MET}': the step met its test but rests on a step whose estimation did not converge or whose "
+                 f"solution is not admissible, so it cannot be read as held.")
 
 
 def _verdict(holds: bool | None, result) -> str:
@@ -347,6 +354,8 @@ def _declared_note(steps) -> str:
 
 
 def invariance_report(result) -> Report:
+    from cfa_tool.workflows.invariance import STOP_HOLDS, unsound_basis  # the ladder's own, loaded with it
+
     # two narrow tables (each level's own fit; each step against the one before) read in 80 columns;
     # a partially invariant step shows first with every equality, then with the freed ones
     levels, level_values, flagged = [], [], []
@@ -373,7 +382,8 @@ def invariance_report(result) -> Report:
         level_values.append([label, *values, _admissible_cell(step.result)])
         if step.result.converged and not step.result.admissible:
             flagged.append(len(levels) - 1)
-        verdict = _verdict(step.holds, step.result) + (" *" if step.conditional else "")
+        verdict = (TEST_MET if step.holds and unsound_basis(result.steps, k) is not None
+                   else _verdict(step.holds, step.result)) + (" *" if step.conditional else "")
         if step.versus_previous is not None:
             cells, values = _step_cells(step.versus_previous, step.delta_srmr)
             steps.append([label, *cells, verdict])
@@ -399,6 +409,8 @@ def invariance_report(result) -> Report:
                [("Level", "l"), ("Difference (df)", "r"), ("p", "r"), *delta_columns, ("Holds", "l")], steps,
                " ".join(note for note, shown in (
                    (INADMISSIBLE_VERDICT_NOTE, any(not s.result.admissible for s in result.steps)),
+                   (TEST_MET_NOTE, any(s.holds and unsound_basis(result.steps, k) is not None
+                                       for k, s in enumerate(result.steps))),
                    ("* tested after a step that did not hold: the comparison is between models already rejected.",
                     any(step.conditional for step in result.steps))) if shown) or None,
                values=(["Level", "Chi-square difference", "df difference", "p", *delta_values, "Holds"], step_values)),
@@ -411,9 +423,9 @@ def invariance_report(result) -> Report:
         CONFIGURAL_ORDINAL_NOTE if ordinal else CONFIGURAL_NOTE]
     if result.freed:
         many = len(result.groups) > 2
-        rows = [[f.level, f"{f.kind.replace('_', ' ')} {', '.join(f.variables)}", *([str(f.group)] if many else []),
+        rows = [[f.level, parameter_words(f.kind, f.variables, article=False), *([str(f.group)] if many else []),
                  num(f.score, 2)] for f in result.freed]
-        values = [[f.level, f"{f.kind.replace('_', ' ')} {', '.join(f.variables)}", *([str(f.group)] if many else []),
+        values = [[f.level, parameter_words(f.kind, f.variables, article=False), *([str(f.group)] if many else []),
                    f.score] for f in result.freed]
         columns = [("Level", "l"), ("Parameter", "l")] + ([("Pointed to by group", "l")] if many else []) + [
             ("Score test", "r")]
@@ -426,13 +438,13 @@ def invariance_report(result) -> Report:
     if declared:
         notes.append(declared)
     for step in result.steps:
-        if step.stopped and (step.partial or step.stopped != "the step holds"):
+        if step.stopped and (step.partial or step.stopped != STOP_HOLDS):
             freed_words = f"freed {len(step.freed)} parameter{'s' if len(step.freed) != 1 else ''} and " \
                 if step.partial else ""
             notes.append(f"The search at the {step.level} step {freed_words}stopped: {step.stopped}.")
         if not step.holds and step.culprits:
             notes.append(f"Likeliest sources of misfit at the {step.level} step (score tests): " + "; ".join(
-                f"{c.kind.replace('_', ' ')} {', '.join(c.variables)} in {c.group} ({c.index:.2f})"
+                f"{parameter_words(c.kind, c.variables, c.group)} ({c.index:.2f})"
                 for c in step.culprits[:5]))
     if result.latent_differences:
         rows = [[d.factor, d.group, num(d.mean), num(d.se), f"[{num(d.ci95[0], 2)}, {num(d.ci95[1], 2)}]",
@@ -763,12 +775,13 @@ def montecarlo_report(result) -> Report:
              f"({100 * result.converged / result.replications:.1f}%); {_inadmissible_phrase([result])}."
              ] + _ordinal_power_lines(result)
     if result.defaulted:
-        lines.append("Population values not given in the model file took defaults: " + ", ".join(result.defaulted))
+        lines.append("Population values not given in the model file took defaults: "
+                     + ", ".join(label_words(label) for label in result.defaulted))
     lines += not_carried_line(result.not_carried)
     # what decides the plan first: power, then whether intervals and estimates can be trusted at this N
-    rows = [[p.label, unit(p.power, 2), f"{100 * p.coverage:.1f}%", _percent(p.relative_bias), _percent(p.se_bias)]
-            for p in result.parameters]
-    values = [[p.label, p.power, p.coverage, p.relative_bias, p.se_bias] for p in result.parameters]
+    rows = [[label_words(p.label, article=False), unit(p.power, 2), f"{100 * p.coverage:.1f}%",
+             _percent(p.relative_bias), _percent(p.se_bias)] for p in result.parameters]
+    values = [[label_words(p.label, article=False), p.power, p.coverage, p.relative_bias, p.se_bias] for p in result.parameters]
     table = _table("parameters", "Per parameter", [("Parameter", "l"), ("Power", "r"), ("Coverage", "r"),
                                                    ("Estimate bias %", "r"), ("SE bias %", "r")], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha {unit(result.alpha, 2)}; "
@@ -791,10 +804,12 @@ def power_curve_report(curve) -> Report:
                   f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {r.n_obs}"
                                                            for r in curve.results) + " of the converged replications."]
     if first.defaulted:
-        lines.append("Population values not given in the model file took defaults: " + ", ".join(first.defaulted))
+        lines.append("Population values not given in the model file took defaults: "
+                     + ", ".join(label_words(label) for label in first.defaulted))
     lines += not_carried_line(first.not_carried)
-    rows = [[p.label, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, p in enumerate(first.parameters)]
-    values = [[p.label, *(r.parameters[k].power for r in curve.results)] for k, p in enumerate(first.parameters)]
+    rows = [[label_words(p.label, article=False), *(unit(r.parameters[k].power, 2) for r in curve.results)]
+            for k, p in enumerate(first.parameters)]
+    values = [[label_words(p.label, article=False), *(r.parameters[k].power for r in curve.results)] for k, p in enumerate(first.parameters)]
     table = _table("power_by_sample_size", "Power per parameter and sample size",
                    [("Parameter", "l")] + [(f"N = {n}", "r") for n in curve.sample_sizes], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha "

@@ -30,7 +30,7 @@ from cfa_tool.data.sample_design import check_design, design_columns, design_sum
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.workflows.nesting import DifferenceTest, difference_test, scaled_difference_tests, scaling_at_restricted
 from cfa_tool.views import Presentable
-from cfa_tool.method import DecisionRule  # (declared with the other choices; imported from here too)
+from cfa_tool.method import ORDINAL_FIT_CHANGE, DecisionRule  # (declared with the other choices; imported from here too)
 
 LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
     # level, classes held equal, parameter kinds the step adds
@@ -56,7 +56,7 @@ SRMR_GUIDE_LATER = 0.010
 
 
 #: why the partial-invariance search stopped at a step
-STOP_HOLDS = "the step holds"
+STOP_HOLDS = "the step met its test"
 STOP_OFF = "no search was asked for"
 STOP_NOTHING_LEFT = ("no equality left that may be freed (one loading and one intercept per factor stay equal, so "
                      "that factor scales and means remain comparable)")
@@ -207,6 +207,8 @@ class InvarianceResult(Presentable):
             "groups": list(self.groups),
             "alpha": self.alpha,
             "decision_rule": {"name": self.rule.value, "description": self.rule.description},
+            # ordinal fits: the steps' delta_cfi and delta_rmsea are null, and why (as compare says it)
+            "fit_index_changes_left_out": ORDINAL_FIT_CHANGE if self.steps[0].result.method.ordinal else None,
             "steps": [s.to_dict() for s in self.steps],
             "design": self.steps[0].result.design.to_dict() if self.steps[0].result.design is not None else None,
             "freed": [f.to_dict() for f in self.freed],
@@ -378,6 +380,13 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     differences, latent_note, not_estimated = latent_differences(steps)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + tuple(warnings), rule,
                             differences, latent_note, not_estimated, tuple(notes))
+
+
+def unsound_basis(steps, k: int):
+    """The first step before step ``k`` whose estimation did not converge or whose solution is not admissible
+    (None when there is none): a step resting on it cannot show that invariance holds, even when it meets its
+    test.  The one rule the ladder's 'Holds' cells and the methods paragraph follow."""
+    return next((s for s in steps[:k] if not s.result.converged or not s.result.admissible), None)
 
 
 def _step_holds(rule: DecisionRule, test: DifferenceTest, alpha: float, result: FitResult, general: FitResult,

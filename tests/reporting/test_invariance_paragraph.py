@@ -13,6 +13,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
+from cfa_tool.reporting.terminal import report_text
 from cfa_tool.reporting.workflow_tables import invariance_report
 from cfa_tool.workflows.invariance import invariance
 from tests.conftest import THREE_FACTORS
@@ -59,11 +60,16 @@ def test_every_step_figure_is_the_step_test(partial_ladder):
         assert f"\u03c7\u00b2({t.df_difference}) = {t.chi_square_difference:.2f}" in text
 
 
-def test_ordinal_ladders_name_thresholds_first_and_the_adjusted_difference(hs_data):
+@pytest.fixture(scope="module")
+def ordinal_ladder(hs_data):
     cut = hs_data.copy()
     for column in [f"x{i}" for i in range(1, 10)]:
         cut[column] = pd.qcut(hs_data[column], 4, labels=False) + 1
-    text = _text(invariance(THREE_FACTORS, cut, "school", ordinal="all"))
+    return invariance(THREE_FACTORS, cut, "school", ordinal="all")
+
+
+def test_ordinal_ladders_name_thresholds_first_and_the_adjusted_difference(ordinal_ladder):
+    text = _text(ordinal_ladder)
     assert "configural, thresholds (thresholds equal across groups), metric (thresholds and loadings equal" in text
     assert "thresholds before loadings as Wu & Estabrook (2016) set out" in text
     assert "Threshold invariance" in text and "Thresholds invariance" not in text
@@ -82,3 +88,84 @@ def test_parameters_freed_at_an_earlier_step_stay_free_and_are_said(partial_ladd
     labels = [row[0] for row in invariance_report(partial_ladder).tables[1].rows]
     assert "strict (before its search)" in labels and "strict (partial, 1 freed)" in labels
     assert "scalar (all equal)" in labels and "scalar (2 freed)" in labels
+
+
+def test_an_inadmissible_configural_step_comes_before_any_step_that_met_its_test(hs_data):
+    # found in a re-check: after an inadmissible configural step the paragraph said 'Metric invariance held' before
+    # its caveat.  A bound at .7 holds the loading of x2 on visual in Grant-White (its estimate there is above .7,
+    # about .39 in Pasteur: this model's own configural fit), so only the configural solution is inadmissible; the
+    # metric step meets its test (the tutorial's 8.19 on 6 df, recalled from memory, moves to 8.14 with the bound)
+    result = invariance(THREE_FACTORS + "bound loading(visual, x2) <= 0.7\n", hs_data, "school", partial="auto")
+    assert [s.result.admissible for s in result.steps] == [False, True, True, True]
+    assert result.steps[1].holds and result.steps[1].conditional
+    text = _text(result)
+    problem = text.index("The solution of the configural model was not admissible (the loading of x2 on visual in "
+                         "group Grant-White held at a bound)")
+    assert problem < text.index("The configural model did not hold: its solution was not admissible")
+    assert "held (" not in text and "held as partial" not in text  # no step reads as held
+    assert ("Metric invariance cannot be read as held, though it met its test: it rests on the configural step, "
+            "which was not admissible (\u03c7\u00b2(6) = 8.14") in text
+    assert ("it met its test as partial invariance (\u03c7\u00b2(4) = 5.38, p = .251, \u0394CFI = -.002, \u0394RMSEA = "
+            "-.002, \u0394SRMR = +.000) but cannot be read as held: it rests on the configural step") in text
+    assert ("Resting on the configural step, which was not admissible, the latent mean differences from the partially "
+            "invariant scalar model cannot be read as established") in text
+    assert problem < min(text.index(w) for w in ("met its test", "latent mean differences"))
+    # every view's paragraph keeps the same order (the ladder marks the steps with '*')
+    import io
+
+    import docx
+
+    from cfa_tool.reporting.docx_report import report_docx
+    from cfa_tool.reporting.html_report import report_html
+    from tests.reporting.test_fit_views import _html_text
+
+    report = invariance_report(result)
+    word = " ".join(p.text for p in docx.Document(io.BytesIO(report_docx(report))).paragraphs)
+    for name, view in {"terminal": report_text(report, 100), "HTML": _html_text(report_html(report)),
+                       "Word": word}.items():
+        rendered = " ".join(view.split())
+        first = rendered.index("The solution of the configural model was not admissible")
+        assert first < rendered.index("met its test"), name
+        assert "Metric invariance held" not in rendered, name
+    # the ladder's cells agree: such a step met its test, it is not marked as held (the rule: unsound_basis)
+    steps = next(t for t in report.tables if t.key == "steps")
+    assert [row[-1] for row in steps.rows][:2] == ["inadmissible", "test met *"]
+    assert "'test met': the step met its test but rests on a step" in steps.note
+    assert "stopped: the step met its test" in " ".join(report.notes)
+    assert "the intercept of x3 and the intercept of x7" in text  # what the search freed, in words
+
+
+def test_a_misfitting_but_admissible_configural_step_keeps_its_closing_caveat(partial_ladder):
+    text = _text(partial_ladder)
+    assert "cannot be read as held" not in text and "was not admissible" not in text
+    assert "Metric invariance held (\u03c7\u00b2(6) = 8.19" in text
+    assert "tested after a step that did not hold, so they compare models already rejected" in text
+
+
+def test_ordinal_steps_carry_no_fit_index_changes_and_every_view_says_why(ordinal_ladder):
+    # found in a re-check: compare of ordinal pairs dropped the changes in CFI and RMSEA, the invariance ladder's
+    # JSON still carried them; one rule (workflows.ordinal_compare.difference_record) now serves both
+    import io
+    import json
+
+    import docx
+
+    from cfa_tool.method import ORDINAL_FIT_CHANGE
+    from cfa_tool.reporting.docx_report import report_docx
+    from cfa_tool.reporting.html_report import report_html
+    from cfa_tool.reporting.text_formats import report_markdown
+    from tests.reporting.test_fit_views import _html_text, _plain
+
+    out = json.loads(json.dumps(ordinal_ladder.to_dict()))
+    tests = [s["versus_previous"] for s in out["steps"][1:]]
+    assert tests and all(t["chi_square_difference"] > 0 for t in tests)
+    assert all(t.get("delta_cfi") is None and t.get("delta_rmsea") is None for t in tests)
+    assert out["fit_index_changes_left_out"] == ORDINAL_FIT_CHANGE
+    report = invariance_report(ordinal_ladder)
+    word = " ".join(p.text for p in docx.Document(io.BytesIO(report_docx(report))).paragraphs)
+    why = _plain("Changes in fit indices between steps are not shown: " + ORDINAL_FIT_CHANGE)
+    for name, text in {"terminal": report_text(report, 100), "HTML": _html_text(report_html(report)),
+                       "Markdown": report_markdown(report), "Word": word}.items():
+        text = _plain(text)
+        assert why in text, name
+        assert "\u0394CFI" not in text and "\u0394RMSEA" not in text, name

@@ -1,0 +1,136 @@
+"""Parameters are named in the words a researcher uses, in every view: 'the loading of x2 on visual',
+'the residual variance of x9', 'the covariance of factors visual and speed', '... in group Pasteur'.  The
+machine labels of the parameter table ('loading(visual, x2)') stay in the JSON's 'parameters' key only.
+
+The bound case: in the Holzinger & Swineford (1939) three-factor model the loading of x2 on visual is about
+.55 (the unrestricted estimate of the same model elsewhere in this suite), so a bound at .3 holds it there."""
+
+from __future__ import annotations
+
+import json
+import re
+
+import pytest
+
+import cfa_tool
+from cfa_tool.model.description import label_words, parameter_words, split_label
+from cfa_tool.reporting.docx_report import report_docx
+from cfa_tool.reporting.fit_document import fit_report
+from cfa_tool.reporting.html_report import report_html
+from cfa_tool.reporting.paragraph import methods_paragraph
+from cfa_tool.reporting.terminal import report_text
+from cfa_tool.reporting.text_formats import report_markdown
+from cfa_tool.reporting.workflow_tables import invariance_report
+from cfa_tool.workflows.invariance import invariance
+from tests.conftest import THREE_FACTORS
+from tests.reporting.test_fit_views import _html_text, _plain, _word_text
+
+BOUND = THREE_FACTORS + "bound loading(visual, x2) <= 0.3\n"
+#: a machine label as the parameter table writes it: kind(names)
+MACHINE = re.compile(r"\b(loading|factor_variance|factor_covariance|residual_variance|residual_covariance|intercept|"
+                     r"mean|threshold)\([A-Za-z0-9_]+(, [A-Za-z0-9_]+)?\)")
+
+
+def test_every_kind_of_parameter_in_words():
+    assert parameter_words("loading", ("courtesy", "helpful")) == "the loading of helpful on courtesy"
+    assert parameter_words("residual_variance", ("temperature",)) == "the residual variance of temperature"
+    assert parameter_words("factor_variance", ("F1",)) == "the variance of factor F1"
+    assert parameter_words("factor_covariance", ("F1", "F2")) == "the covariance of factors F1 and F2"
+    assert parameter_words("residual_covariance", ("x7", "x8")) == "the residual covariance of x7 and x8"
+    assert parameter_words("intercept", ("x1",), "north") == "the intercept of x1 in group north"
+    assert parameter_words("threshold", ("x1", "2")) == "threshold 2 of x1"
+    # a model file's kinds: an item's variance is its residual's, a factor's its own
+    assert parameter_words("variance", ("x1",), observed=("x1",)) == "the residual variance of x1"
+    assert parameter_words("variance", ("F1",), observed=("x1",)) == "the variance of factor F1"
+    assert split_label("loading(courtesy, helpful) [south]") == ("loading", ("courtesy", "helpful"), "south")
+    assert label_words("residual_variance(x9) [Pasteur]") == "the residual variance of x9 in group Pasteur"
+    # a label that does not say whether a variance is an item's residual or a factor's stays neutral
+    assert label_words("covariance(x1, x2)", article=False) == "covariance of x1 and x2"
+
+
+@pytest.fixture(scope="module")
+def bound_fit(hs_data):
+    result = cfa_tool.fit(BOUND, hs_data)
+    assert [p.parameters for p in result.problems] == [("loading(visual, x2)",)]
+    return result
+
+
+def test_every_view_of_a_fit_names_the_bound_parameter_in_words(bound_fit):
+    report = fit_report(bound_fit)
+    views = {"terminal": _plain(report_text(report, 100)), "HTML": _plain(_html_text(report_html(report))),
+             "Markdown": _plain(report_markdown(report)), "Word": _plain(_word_text(report_docx(report, 72))),
+             "paragraph": _plain(methods_paragraph(bound_fit))}
+    for name, text in views.items():
+        assert "The loading of x2 on visual is held at its upper bound (0.3)" in text or name == "paragraph", name
+        assert "the loading of x2 on visual held at a bound" in text, name
+        model_file = text.find("bound loading(visual, x2) <= 0.3")  # the model file as written, where a view shows it
+        prose = text if model_file < 0 else text[:model_file] + text[model_file + 33:]
+        assert not MACHINE.search(prose), (name, MACHINE.search(prose))
+    out = bound_fit.to_dict()["problems"][0]
+    assert out["parameters"] == ["loading(visual, x2)"]  # the stable key for programs
+    assert out["parameters_in_words"] == ["the loading of x2 on visual"]
+    assert out["explanation"].startswith("The loading of x2 on visual is held at its upper bound")
+
+
+def test_the_invariance_ladder_names_each_group_parameter_in_words(hs_data):
+    result = invariance(BOUND, hs_data, "school")
+    text = _plain(report_text(invariance_report(result), 100))
+    assert "the loading of x2 on visual in group Grant-White held at a bound" in text
+    assert "the loading of x2 on visual in group Pasteur held at a bound" in text
+    assert not MACHINE.search(text.replace("bound loading(visual, x2) <= 0.3", "")), MACHINE.search(text)
+    assert "parameters_in_words" in json.dumps(result.to_dict())
+
+
+HIGHER = THREE_FACTORS + "factor g: visual, textual, speed\ninvariance scalar\n"
+
+
+def test_the_intercepts_of_factors_under_a_higher_order_factor_are_not_called_means(hs_data):
+    # found in a re-check: a grouped higher-order fit listed the first-order factors' intercepts (the means of their
+    # disturbances) under 'Factor means'.  Holzinger & Swineford (1939) by school, loadings and intercepts equal
+    from cfa_tool.reporting.tables import DISTURBANCE_INTERCEPTS, DISTURBANCE_INTERCEPTS_NOTE
+
+    result = cfa_tool.fit(HIGHER, hs_data, group="school")
+    report = fit_report(result)
+    means = [t for t in report.tables if t.title.startswith("Factor means")]
+    intercepts = [t for t in report.tables if t.title.startswith(DISTURBANCE_INTERCEPTS)]
+    assert [[row[0] for row in t.rows] for t in means] == [["g"], ["g"]]
+    assert [[row[0] for row in t.rows] for t in intercepts] == [["visual", "textual", "speed"]] * 2
+    pasteur = {r.variables[0]: r.estimate for r in result.estimates if r.kind == "mean" and r.group == "Pasteur"}
+    assert pasteur["g"] == 0.0 and pasteur["textual"] != 0.0  # free in the second group: the table shows them
+    shown = dict(zip((row[0] for row in intercepts[1].values), (row[1] for row in intercepts[1].values)))
+    assert shown["textual"] == pytest.approx(pasteur["textual"])
+    for name, text in {"terminal": report_text(report, 100), "HTML": _html_text(report_html(report)),
+                       "Markdown": report_markdown(report), "Word": _word_text(report_docx(report, 72))}.items():
+        text = _plain(text)
+        first = text.index(DISTURBANCE_INTERCEPTS)
+        assert _plain(DISTURBANCE_INTERCEPTS_NOTE) in text[first:], name
+        assert text.index("Factor means") < first, name  # each group's means table, then its intercepts
+
+
+def test_compare_names_an_inadmissible_solution_before_the_fit_figures(hs_data):
+    # the neighbour of the invariance paragraph's order: the problem comes before the figures a reader might take
+    # as support (the bound case above against the same model without the bound)
+    from cfa_tool.reporting.workflow_tables import comparison_report
+    from cfa_tool.workflows.compare import compare
+
+    report = comparison_report(compare([THREE_FACTORS, BOUND], hs_data))
+    for text in (_plain(report.paragraph), _plain(report_text(report, 100))):
+        problem = text.index("was not admissible (the loading of x2 on visual held at a bound)")
+        assert problem < text.index("Fit: ")
+        assert not MACHINE.search(text), MACHINE.search(text)
+
+
+def test_the_power_simulation_tables_name_parameters_in_words():
+    # the simulation's labels are the parameter table's free labels ('loading(f, y2)'); its views show words
+    from cfa_tool.reporting.workflow_tables import montecarlo_report
+    from cfa_tool.workflows.montecarlo import MonteCarloPower, ParameterPower
+
+    rows = tuple(ParameterPower(label, 0.5, 0.5, 0.0, 0.1, 0.1, 0.95, 0.9)
+                 for label in ("loading(f, y2)", "covariance(f, g)", "variance(y3)"))
+    result = MonteCarloPower(200, 500, 500, 0.05, 1, rows, ("loading(g, y7)",))
+    report = montecarlo_report(result)
+    assert [row[0] for row in report.tables[0].rows] == ["loading of y2 on f", "covariance of f and g", "variance of y3"]
+    text = _plain(report_text(report, 100))
+    assert "took defaults: the loading of y7 on g" in text
+    assert not MACHINE.search(text) and "loading(" not in text and "covariance(" not in text
+    assert result.to_dict()["parameters"][0]["label"] == "loading(f, y2)"  # the JSON keeps the key
