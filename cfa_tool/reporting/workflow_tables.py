@@ -807,9 +807,9 @@ def power_curve_report(curve) -> Report:
         lines.append("Population values not given in the model file took defaults: "
                      + ", ".join(label_words(label) for label in first.defaulted))
     lines += not_carried_line(first.not_carried)
-    rows = [[label_words(p.label, article=False), *(unit(r.parameters[k].power, 2) for r in curve.results)]
-            for k, p in enumerate(first.parameters)]
-    values = [[label_words(p.label, article=False), *(r.parameters[k].power for r in curve.results)] for k, p in enumerate(first.parameters)]
+    names = [label_words(p.label, article=False) for p in first.parameters]
+    rows = [[name, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, name in enumerate(names)]
+    values = [[name, *(r.parameters[k].power for r in curve.results)] for k, name in enumerate(names)]
     table = _table("power_by_sample_size", "Power per parameter and sample size",
                    [("Parameter", "l")] + [(f"N = {n}", "r") for n in curve.sample_sizes], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha "
@@ -818,12 +818,12 @@ def power_curve_report(curve) -> Report:
     # whether intervals and estimates can be trusted at each size: coverage and bias beside each other per size
     heads = [("Parameter", "l")] + [(f"{what} at N = {n}", "r") for n in curve.sample_sizes
                                     for what in ("Coverage", "Estimate bias %", "SE bias %")]
-    rows = [[p.label, *(cell for r in curve.results for cell in (
+    rows = [[name, *(cell for r in curve.results for cell in (
         f"{100 * r.parameters[k].coverage:.1f}%", _percent(r.parameters[k].relative_bias),
-        _percent(r.parameters[k].se_bias)))] for k, p in enumerate(first.parameters)]
-    values = [[p.label, *(v for r in curve.results for v in (
+        _percent(r.parameters[k].se_bias)))] for k, name in enumerate(names)]
+    values = [[name, *(v for r in curve.results for v in (
         r.parameters[k].coverage, r.parameters[k].relative_bias, r.parameters[k].se_bias))]
-        for k, p in enumerate(first.parameters)]
+        for k, name in enumerate(names)]
     trust = _table("coverage_and_bias_by_sample_size", "Coverage and bias per parameter and sample size", heads, rows,
                    "Coverage: share of 95% Wald intervals that hold the population value (nominal 95%); bias: mean "
                    "estimate (or mean SE) against the population value (or the SD of the estimates). Population "
