@@ -1,6 +1,8 @@
 """The start of ``cfa-tool fit``: the fit's report imports no workflow, exploratory analysis or scoring module
-(finding which command a result belongs to once imported them all), and a run of the program collects cyclic
-garbage after every 200,000 new objects, while a caller that passes the arguments keeps its own setting."""
+(finding which command a result belongs to once imported them all), no writer of a file it was not asked for and
+not the path diagram; a run of the program collects cyclic garbage after every 200,000 new objects, while a caller
+that passes the arguments keeps its own setting; and the program ends without the interpreter's teardown, its exit
+steps done."""
 
 from __future__ import annotations
 
@@ -43,6 +45,10 @@ def test_a_fit_from_the_command_line_imports_only_what_its_report_uses(tmp_path)
     assert code == 0
     for package in ("cfa_tool.workflows", "cfa_tool.scoring", "cfa_tool.exploration.analysis"):
         assert not [m for m in loaded if m == package or m.startswith(package + ".")], package
+    # the writers of files it was not asked for, and the path diagram, which the terminal names without drawing
+    for writer in ("json_report", "html_report", "docx_report", "text_formats", "diagram", "escape"):
+        assert f"cfa_tool.reporting.{writer}" not in loaded, writer
+    assert "cfa_tool.reporting.terminal" in loaded  # (what the report was drawn with)
     assert threshold == cli.COLLECT_EVERY
 
 
