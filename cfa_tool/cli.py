@@ -103,7 +103,7 @@ def program() -> int:
     try:
         sys.stdout.flush()
         sys.stderr.flush()
-    except (OSError, ValueError):  # a closed pipe or stream: the usual exit reports it as before
+    except (OSError, ValueError, AttributeError):  # a closed pipe or stream, or none: the usual exit, as before
         return code
     os._exit(code)
 
