@@ -7,7 +7,8 @@ against semopy's, each in new processes taking turns (so that a change in the ma
 
 Case 1 (Holzinger-Swineford, 9 items, N = 301), from a CSV file:
 
-* command line: ``cfa-tool fit model.cfa --data data.csv`` (the terminal report);
+* command line: ``cfa-tool fit model.cfa --data data.csv`` (the terminal report, run as ``python -m cfa_tool``:
+  the program's own end, ``cli.program``, included; the stages below stop after the reports);
 * Python API: ``import cfa_tool, pandas``; read the CSV; ``cfa_tool.fit(text, data).to_dict()`` (the default call);
 * semopy: ``import semopy, pandas``; read the CSV; fit, inspect and calc_stats.
 

@@ -1,3 +1,3 @@
-from cfa_tool.cli import main
+from cfa_tool.cli import program
 
-raise SystemExit(main())
+raise SystemExit(program())

@@ -7,6 +7,7 @@ not be estimated (no convergence, not identified), 1 an internal error.
 from __future__ import annotations
 
 import argparse
+import atexit
 import contextlib
 import gc
 import os
@@ -85,6 +86,28 @@ def main(argv: list[str] | None = None) -> int:
     return _main(argv)
 
 
+def program() -> int:
+    """The program (``cfa-tool``, ``python -m cfa_tool``): :func:`main` on its own arguments, then the end of the
+    process without the interpreter's teardown.  Freeing every module and object one by one (numpy, pandas, scipy,
+    the tool: about 950 modules) took 6 % of a ``fit``'s instructions (174 of 2,813 million), memory the system
+    takes back at once anyway.  What an exit must do is still done first: cyclic garbage collected (a file object
+    in a cycle is flushed and closed; 55 million of the 174), the functions registered with :mod:`atexit` run,
+    standard output and error flushed.  With another thread still running, or output that cannot be flushed, the
+    process ends as usual (returns the exit code)."""
+    code = main()
+    threading = sys.modules.get("threading")
+    if threading is not None and threading.active_count() > 1:
+        return code
+    gc.collect()
+    atexit._run_exitfuncs()  # noqa: SLF001 - the interpreter's own exit step, run here before leaving without it
+    try:
+        sys.stdout.flush()
+        sys.stderr.flush()
+    except (OSError, ValueError, AttributeError):  # a closed pipe or stream, or none: the usual exit, as before
+        return code
+    os._exit(code)
+
+
 def _main(argv: list[str] | None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
     parser = build_parser(argv[0] if argv else None)
@@ -152,4 +175,4 @@ def _run(args: argparse.Namespace) -> int:
 
 
 if __name__ == "__main__":  # pragma: no cover
-    sys.exit(main())
+    sys.exit(program())

@@ -7,7 +7,9 @@ from __future__ import annotations
 
 import enum
 import re
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
+from functools import cached_property
+from typing import Callable
 
 from cfa_tool.reporting.tables import ProblemNotice, ReportTable
 
@@ -49,13 +51,31 @@ class ResultKind(enum.Enum):
     ALIGN = "align"
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class Figure:
-    """A picture of the report (SVG text) with its title and the note under it."""
+    """A picture of the report (SVG text, :attr:`svg`) with its title and the note under it (:attr:`note`).  Both
+    are made by ``draw`` when a view first asks for them: the terminal names a figure without drawing it (a fit's
+    path diagram and the modules that draw it were a tenth of the first terminal report's own work)."""
 
     title: str
-    svg: str
-    note: str = ""
+    draw: Callable[[], tuple[str, str]] = field(repr=False)  # -> (SVG text, note)
+
+    @cached_property
+    def _drawn(self) -> tuple[str, str]:
+        return self.draw()
+
+    @property
+    def svg(self) -> str:
+        return self._drawn[0]
+
+    @property
+    def note(self) -> str:
+        return self._drawn[1]
+
+
+def drawn(svg: str, note: str = "") -> Callable[[], tuple[str, str]]:
+    """The ``draw`` of a :class:`Figure` whose picture is already made (read from a saved result)."""
+    return lambda: (svg, note)
 
 
 @dataclass(frozen=True)
@@ -113,7 +133,7 @@ class Report:
         return cls(ResultKind(d["kind"]), str(d["title"]), notice, tuple(map(str, d["lines"])),
                    tuple(ReportTable.from_dict(t) for t in d["tables"]), tuple(map(str, d.get("notes", ()))),
                    tuple(map(str, d.get("cautions", ()))), d.get("paragraph"),
-                   tuple(Figure(str(f["title"]), str(f["svg"]), str(f.get("note", ""))) for f in d.get("figures", ())),
+                   tuple(Figure(str(f["title"]), drawn(str(f["svg"]), str(f.get("note", "")))) for f in d.get("figures", ())),
                    None if d.get("problem_table") is None else ReportTable.from_dict(d["problem_table"]),
                    tuple(map(str, d.get("warnings", ()))),
                    tuple(Listing(str(x["title"]), str(x["text"])) for x in d.get("listings", ())))

@@ -279,7 +279,7 @@ def explore_report(result):
               + in_section(CONFIRMATION_SECTION, confirmation_tables(result)))
     return Report(ResultKind.EXPLORE, "Exploratory factor analysis", notice, lines, tuple(tables),
                   tuple(split_lines(result)), (_rules_caution(), GUIDE_NOTE),
-                  figures=(Figure("Scree plot: eigenvalues beside those of random data", scree_svg(result)),),
+                  figures=(Figure("Scree plot: eigenvalues beside those of random data", lambda: (scree_svg(result), "")),),
                   warnings=tuple(result.notes), listings=(Listing("Draft model", result.draft_text),))
 
 

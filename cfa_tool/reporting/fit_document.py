@@ -5,9 +5,9 @@ result carries so that ``cfa-tool report`` can write any format later."""
 from __future__ import annotations
 
 from dataclasses import replace
+from functools import partial
 
 from cfa_tool.reporting import tables as T
-from cfa_tool.reporting.diagram import BLOCK_LEGEND, legend_text, path_diagram
 from cfa_tool.reporting.document import Figure, Listing, Report, ResultKind, in_section
 from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable
@@ -40,13 +40,16 @@ def fit_tables(result) -> list[ReportTable]:
     return out
 
 
-def _figure_note(result) -> str:
+def _path_diagram(result, k: int) -> tuple[str, str]:
+    """Group ``k``'s path diagram (SVG text) and the note under it, drawn when a view shows it."""
+    from cfa_tool.reporting.diagram import BLOCK_LEGEND, legend_text, path_diagram
+
     note = legend_text(result)
     if getattr(result, "exploratory", ()):
         note += " " + BLOCK_LEGEND
     if result.problems:
         note += " Elements in red show a problem of the solution."
-    return note
+    return path_diagram(result, k), note
 
 
 def _two_factor_higher_order(result) -> tuple[str, ...]:
@@ -73,7 +76,7 @@ def fit_report(result) -> Report:
     lines = (f"Model file: {result.model_source}", f"Data: {d.source}; {T.rows_phrase(d, getattr(result, 'design', None))}", T.status_line(result))
     warnings = tuple(result.warnings) + (() if result.converged else (NOT_CONVERGED,))
     figures = tuple(Figure("Path diagram of the fitted model" + ("" if g.label is None else f", group {g.label}")
-                           + " (standardized values)", path_diagram(result, k), _figure_note(result))
+                           + " (standardized values)", partial(_path_diagram, result, k))
                     for k, g in enumerate(result.groups))
     left_out = T.matrices_left_out(result)
     notes = (() if left_out is None else (left_out,)) + _two_factor_higher_order(result)
