@@ -49,11 +49,12 @@ class RowDesign:
 
     weights: np.ndarray  # sampling weights rescaled to sum to the rows; frequency weights as given
     kind: WeightKind
-    # integer code of each row's cluster and stratum (data.sample_design.apply_design: the same codes in every group)
-    clusters: np.ndarray | None = field(default=None)
-    strata: np.ndarray | None = field(default=None)
+    clusters: np.ndarray | None = field(default=None)  # integer code of each row's cluster
+    strata: np.ndarray | None = field(default=None)  # integer code of each row's stratum
     given: tuple[float, float] = (0.0, 0.0)  # sum and sum of squares of the weights as given (before rescaling)
-    strata_names: tuple[str, ...] = ()  # the stratum of each code, as the data name it
+    # the cluster and the stratum of each code, as the data name them (groups coded apart share names, not codes)
+    cluster_names: tuple[str, ...] = ()
+    strata_names: tuple[str, ...] = ()
 
     @property
     def total(self) -> float:
@@ -73,17 +74,22 @@ class RowDesign:
             return ()
         _, stratum_of_unit = self.sampling_units()
         codes, counts = np.unique(stratum_of_unit, return_counts=True)
-        return tuple(self.strata_names[c] if c < len(self.strata_names) else str(c) for c in codes[counts == 1])
+        return tuple(_named(codes[counts == 1], self.strata_names))
+
+
+def _named(codes: np.ndarray, names: tuple[str, ...]) -> list[str]:
+    """The names of integer ``codes`` (the code itself, as text, where no name is given)."""
+    return [names[c] if c < len(names) else str(c) for c in codes.tolist()]
 
 
 def shared_clusters(designs: list[RowDesign | None]) -> bool:
-    """Whether some cluster has rows in more than one of these groups' designs (the groups are then domains of
-    one cluster sample, not independent samples)."""
+    """Whether some cluster, by name, has rows in more than one of these groups' designs (the groups are then
+    domains of one cluster sample, not independent samples)."""
     seen: set = set()
     for design in designs:
         if design is None or design.clusters is None:
             return False
-        own = set(np.unique(design.clusters).tolist())
+        own = set(_named(np.unique(design.clusters), design.cluster_names))
         if own & seen:
             return True
         seen |= own
@@ -91,14 +97,21 @@ def shared_clusters(designs: list[RowDesign | None]) -> bool:
 
 
 def joint_design(designs: list[RowDesign]) -> RowDesign:
-    """The groups' rows as one sample, in the order of the groups (their codes are shared; each group's weights
-    as they are)."""
-    first = designs[0]
-    stacked = [np.concatenate([getattr(d, name) for d in designs]) if getattr(first, name) is not None else None
-               for name in ("clusters", "strata")]
-    return RowDesign(np.concatenate([d.weights for d in designs]), first.kind, *stacked,
+    """The groups' rows as one sample, in the order of the groups, clusters and strata coded anew by name; each
+    group's weights as they are."""
+    parts, names = [], []
+    for codes, labels in (("clusters", "cluster_names"), ("strata", "strata_names")):
+        if getattr(designs[0], codes) is None:
+            parts.append(None)
+            names.append(())
+            continue
+        coded, uniques = pd.factorize(np.concatenate([np.array(_named(getattr(d, codes), getattr(d, labels)), dtype=object)
+                                                      for d in designs]))
+        parts.append(coded)
+        names.append(tuple(str(u) for u in uniques))
+    return RowDesign(np.concatenate([d.weights for d in designs]), designs[0].kind, *parts,
                      given=(sum(d.given[0] for d in designs), sum(d.given[1] for d in designs)),
-                     strata_names=first.strata_names)
+                     cluster_names=names[0], strata_names=names[1])
 
 
 @dataclass(frozen=True)
@@ -445,16 +458,16 @@ def row_design(frame: pd.DataFrame, columns: DesignColumns, kept: np.ndarray, pa
     given = (float(w.sum()), float(w @ w))
     if columns.kind is WeightKind.SAMPLING:
         w = w * (len(w) / w.sum())
-    codes, names = [], ()
+    codes, names = [], []
     for name in (columns.cluster, columns.strata):
         if name is None:
             codes.append(None)
+            names.append(())
             continue
         code, labels = pd.factorize(_labels(frame[name]).to_numpy())
         codes.append(code[part][kept])
-        if name == columns.strata:
-            names = tuple(str(label) for label in labels)
-    return RowDesign(w, columns.kind, *codes, given=given, strata_names=names)
+        names.append(tuple(str(label) for label in labels))
+    return RowDesign(w, columns.kind, *codes, given=given, cluster_names=names[0], strata_names=names[1])
 
 
 def kept_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, missing) -> np.ndarray:
@@ -489,9 +502,10 @@ def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list) -
     designs = [m.design for m in moments]
     shared = len(designs) > 1 and shared_clusters(designs)
     if shared:
-        clusters = len(np.unique(np.concatenate([d.clusters for d in designs])))
-    lone = joint_design(designs).lone_strata() if shared else tuple(
-        dict.fromkeys(name for d in designs for name in d.lone_strata()))
+        joint = joint_design(designs)
+        clusters, lone = len(joint.cluster_names), joint.lone_strata()
+    else:
+        lone = tuple(dict.fromkeys(name for d in designs for name in d.lone_strata()))
     return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows, lone, shared)
 
 

@@ -293,3 +293,18 @@ def test_bootstrap_refuses_a_lone_stratum(hs_data):
     data = hs_data.assign(unit=np.arange(len(hs_data)) // 5, st=np.where(np.arange(len(hs_data)) < 5, "edge", "rest"))
     with pytest.raises(DataError, match="stratum 'edge' of column 'st' has a single cluster among the rows analysed"):
         bootstrap(ONE_FACTOR, data, replications=10, workers=1, cluster="unit", strata="st")
+
+
+def test_ordinal_groups_with_clusters_of_their_own_are_independent_samples():
+    # each group's ordinal moments code its clusters apart (from 0 in every group): clusters are told apart by
+    # name, so groups whose clusters differ are not taken for domains sharing clusters (a trial found them so)
+    from pathlib import Path
+
+    folder = Path(__file__).resolve().parents[1] / "commands" / "bad_inputs"
+    data = pd.read_csv(folder / "data" / "ordinal_survey.csv")
+    data = data.assign(unit=data["site"] + "-" + data["school"].astype(str))
+    result = cfa_tool.fit((folder / "models" / "good.cfa").read_text(), data, group="site", cluster="unit",
+                          ordinal="all")
+    assert not result.design.shared_clusters and result.design.clusters == 60
+    assert "The groups are taken as independent samples, each with its own clusters." in result.design.sentence(
+        ordinal=True)
