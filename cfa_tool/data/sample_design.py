@@ -217,7 +217,7 @@ class SampleDesign:
             return None
         return (f"{self.lone_text()[0].upper()}{self.lone_text()[1:]}. This errs towards larger standard errors (and a "
                 f"smaller scaled chi-square), not smaller ones; merging that stratum with a neighbouring one in the data "
-                f"is the alternative (Rust & Kalton 1987).")
+                f"is the alternative (Rust & Kalton 1987)")  # notes end without a full stop (views add it)
 
     def status(self) -> str:
         """The design in the status line: 'design: sampling weights (w; sum 912, Kish's effective N 783.2),

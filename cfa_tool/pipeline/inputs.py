@@ -798,7 +798,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                    float(w[none].sum()))
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - odd_complete - empty, empty,
                        coverage, labels, bool(ordinal_items), sample_design,
-                       sample_design.caution(table.n_free) if sample_design is not None else None, tuple(notes),
+                       sample_design.caution(table.n_free) if sample_design is not None else None,
+                       tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
                        odd_value_problems(loaded), len(frame) - len(answered), odd_complete,
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted)
 

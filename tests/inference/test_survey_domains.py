@@ -308,3 +308,10 @@ def test_ordinal_groups_with_clusters_of_their_own_are_independent_samples():
     assert not result.design.shared_clusters and result.design.clusters == 60
     assert "The groups are taken as independent samples, each with its own clusters." in result.design.sentence(
         ordinal=True)
+
+
+def test_check_names_a_lone_stratum_as_the_fit_would(hs_data):
+    data = hs_data.assign(unit=np.arange(len(hs_data)) // 5, st=np.where(np.arange(len(hs_data)) < 5, "edge", "rest"))
+    checked = cfa_tool.check(ONE_FACTOR, data, cluster="unit", strata="st")
+    assert checked.design.lone_strata == ("edge",)
+    assert any("a single cluster ('edge')" in note for note in checked.notes)
