@@ -52,10 +52,66 @@ class RowDesign:
     clusters: np.ndarray | None = field(default=None)  # integer code of each row's cluster
     strata: np.ndarray | None = field(default=None)  # integer code of each row's stratum
     given: tuple[float, float] = (0.0, 0.0)  # sum and sum of squares of the weights as given (before rescaling)
+    # the cluster and the stratum of each code, as the data name them (groups coded apart share names, not codes)
+    cluster_names: tuple[str, ...] = ()
+    strata_names: tuple[str, ...] = ()
 
     @property
     def total(self) -> float:
         return float(self.weights.sum())
+
+    def sampling_units(self) -> tuple[np.ndarray, np.ndarray]:
+        """(the sampling unit of each row, the stratum code of each unit): units are the clusters, or the rows
+        when strata come without clusters; one stratum (code 0) when none is given."""
+        units = self.clusters if self.clusters is not None else np.arange(len(self.weights))
+        strata = self.strata if self.strata is not None else np.zeros(len(self.weights), dtype=int)
+        pairs, unit_of_row = np.unique(np.stack([strata, units], axis=1), axis=0, return_inverse=True)
+        return unit_of_row.ravel(), pairs[:, 0]
+
+    def lone_strata(self) -> tuple[str, ...]:
+        """The strata with a single sampling unit (cluster, or row without clusters) among these rows, by name."""
+        if self.strata is None:
+            return ()
+        _, stratum_of_unit = self.sampling_units()
+        codes, counts = np.unique(stratum_of_unit, return_counts=True)
+        return tuple(_named(codes[counts == 1], self.strata_names))
+
+
+def _named(codes: np.ndarray, names: tuple[str, ...]) -> list[str]:
+    """The names of integer ``codes`` (the code itself, as text, where no name is given)."""
+    return [names[c] if c < len(names) else str(c) for c in codes.tolist()]
+
+
+def shared_clusters(designs: list[RowDesign | None]) -> bool:
+    """Whether some cluster, by name, has rows in more than one of these groups' designs (the groups are then
+    domains of one cluster sample, not independent samples)."""
+    seen: set = set()
+    for design in designs:
+        if design is None or design.clusters is None:
+            return False
+        own = set(_named(np.unique(design.clusters), design.cluster_names))
+        if own & seen:
+            return True
+        seen |= own
+    return False
+
+
+def joint_design(designs: list[RowDesign]) -> RowDesign:
+    """The groups' rows as one sample, in the order of the groups, clusters and strata coded anew by name; each
+    group's weights as they are."""
+    parts, names = [], []
+    for codes, labels in (("clusters", "cluster_names"), ("strata", "strata_names")):
+        if getattr(designs[0], codes) is None:
+            parts.append(None)
+            names.append(())
+            continue
+        coded, uniques = pd.factorize(np.concatenate([np.array(_named(getattr(d, codes), getattr(d, labels)), dtype=object)
+                                                      for d in designs]))
+        parts.append(coded)
+        names.append(tuple(str(u) for u in uniques))
+    return RowDesign(np.concatenate([d.weights for d in designs]), designs[0].kind, *parts,
+                     given=(sum(d.given[0] for d in designs), sum(d.given[1] for d in designs)),
+                     cluster_names=names[0], strata_names=names[1])
 
 
 @dataclass(frozen=True)
@@ -69,13 +125,21 @@ class SampleDesign:
     clusters: int | None
     strata: int | None
     group_rows: tuple[int, ...] = ()  # rows of each group when there are several (sampling weights rescaled in each)
+    # strata with a single sampling unit (cluster, or row without clusters) among the rows analysed, by name (in a
+    # group, when the groups are independent samples); their unit is centred at the mean of all units' sums
+    lone_strata: tuple[str, ...] = ()
+    shared_clusters: bool = False  # the groups share clusters: domains of one cluster sample
 
     def to_dict(self) -> dict:
         c = self.columns
         return {"weights": c.weights, "weight_kind": c.kind.value if c.weights else None,
                 "sum_of_weights": self.sum_of_weights, "effective_sample_size": self.effective_n,
                 "cluster": c.cluster, "clusters": self.clusters, "strata_column": c.strata, "strata": self.strata,
-                "rows": self.rows, "rows_per_group": list(self.group_rows) or None, "sandwich": c.robust}
+                "rows": self.rows, "rows_per_group": list(self.group_rows) or None, "sandwich": c.robust,
+                "groups": (None if not self.group_rows else
+                           "domains sharing clusters" if self.shared_clusters else "independent samples"),
+                "strata_with_a_single_unit": list(self.lone_strata),
+                "single_unit_centred_at": "the mean of all units' sums" if self.lone_strata else None}
 
     def sentence(self, full_information: bool = False, ordinal: bool = False,
                  correlations: str = "polychoric correlations", weighted_least_squares: bool = True) -> str:
@@ -111,6 +175,17 @@ class SampleDesign:
                       f"strata, times C_h/(C_h - 1) for the C_h {units} of stratum h; Binder 1983)")
         else:
             spread = f"the {units}' weighted sums" + (" (times C/(C - 1) for C clusters; Binder 1983)" if c.cluster else "")
+        after = ""
+        if self.group_rows and self.shared_clusters:
+            after += (" The groups are domains that share clusters: their estimating equations are stacked, and each "
+                      "cluster's sums gather the contributions of its rows in every group, so the groups' estimates "
+                      "are correlated through their clusters (Binder 1983).")
+        elif self.group_rows and (c.cluster or c.strata):
+            after += (" The groups are taken as independent samples" + (", each with its own clusters" if c.cluster else "")
+                      + (", each group's part of a stratum a stratum of its own" if c.strata else "") + ".")
+        lone = self.lone_text()
+        if lone:
+            after += f" {lone[0].upper()}{lone[1:]}."
         if ordinal:
             weights = ("The least-squares weights come from the design-based covariance of the thresholds and "
                        "correlations; the standard errors and the scale-shifted test come from it too" if
@@ -118,9 +193,31 @@ class SampleDesign:
                        "The standard errors and the scale-shifted test come from the design-based covariance of the "
                        "thresholds and correlations")
             return text + (f" {weights}: the covariance of their influence functions (the rows' contributions to their "
-                           f"estimating equations) over {spread}.")
+                           f"estimating equations) over {spread}.") + after
         return text + (f" Standard errors are sandwich estimates from the rows' score contributions over {spread}, and "
-                       f"the chi-square is scaled accordingly.")
+                       f"the chi-square is scaled accordingly.") + after
+
+    def lone_text(self) -> str:
+        """What was done with strata of a single sampling unit (empty when there are none)."""
+        if not self.lone_strata:
+            return ""
+        unit = "cluster" if self.columns.cluster else "row"
+        count = len(self.lone_strata)
+        which = ", ".join(f"'{name}'" for name in self.lone_strata[:LONE_STRATA_NAMED]) + (
+            f" and {count - LONE_STRATA_NAMED} more" if count > LONE_STRATA_NAMED else "")
+        where = " in a group" if self.group_rows and not self.shared_clusters else ""
+        return (f"{count} {'stratum has' if count == 1 else 'strata have'} a single {unit}{where} ({which}); with no second "
+                f"{unit} to compare, its weighted sum was centred at the mean of all {unit}s' sums instead of its "
+                f"stratum's mean (factor 1), a conservative choice that counts the differences between strata as "
+                f"variance (Lumley 2010)")
+
+    def lone_caution(self) -> str | None:
+        """Why standard errors lean large when a stratum has a single sampling unit (None otherwise)."""
+        if not self.lone_strata:
+            return None
+        return (f"{self.lone_text()[0].upper()}{self.lone_text()[1:]}. This errs towards larger standard errors (and a "
+                f"smaller scaled chi-square), not smaller ones; merging that stratum with a neighbouring one in the data "
+                f"is the alternative (Rust & Kalton 1987)")  # notes end without a full stop (views add it)
 
     def status(self) -> str:
         """The design in the status line: 'design: sampling weights (w; sum 912, Kish's effective N 783.2),
@@ -162,6 +259,8 @@ class SampleDesign:
                 f"clusters (common practice).")
 
 
+#: strata with a single unit named in the methods paragraph and the caution (the rest counted)
+LONE_STRATA_NAMED = 5
 #: fewer effective rows per free parameter than this under sampling weights: a caution (at least 5 cases per
 #: free parameter, Bentler & Chou 1987; common practice, a rule of thumb)
 ROWS_PER_PARAMETER = 5
@@ -231,39 +330,64 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             cluster = pairs[columns.cluster][shared.to_numpy()].iloc[0]
             raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' lies in "
                             f"more than one stratum of '{printable(columns.strata)}'; clusters must be nested in strata")
-    if columns.cluster is not None and group is not None:
-        labelled = frame.loc[frame[group].notna()]
-        pairs = pd.DataFrame({columns.cluster: _labels(labelled[columns.cluster]),
-                              group: _labels(labelled[group])}).drop_duplicates()
-        shared = pairs[columns.cluster].duplicated()
-        if shared.any():
-            cluster = pairs[columns.cluster][shared.to_numpy()].iloc[0]
-            raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
-                            f"more than one group of '{printable(group)}'; the groups are fitted as independent samples, "
-                            f"so every cluster must lie within one group (groups that cross clusters, domains of the "
-                            f"sample, are not yet analysed with their clusters): fit each group alone with its clusters "
-                            f"(--keep \"{printable(group)} = ...\"), or group by a column that clusters nest in")
     if columns.cluster is not None:
         names = pd.unique(_labels(frame[columns.cluster]))
         if len(names) < 2:
             raise DataError(f"{source}: column '{printable(columns.cluster)}' names a single cluster "
                             f"('{printable(names[0])}'), and cluster-robust standard errors need at least two (and "
                             f"about 30 or more to be trusted); remove the cluster column or give the right one")
-    if columns.strata is not None:
-        units = _labels(frame[columns.cluster]) if columns.cluster is not None else pd.Series(np.arange(len(frame)),
-                                                                                             index=frame.index)
-        per_stratum = units.groupby(_labels(frame[columns.strata]).to_numpy()).nunique()
-        single = per_stratum[per_stratum < 2]
+    if columns.cluster is not None and group is not None and shared_cluster(frame, columns, group) is None:
+        # the groups are independent samples, each with its own clusters: each group needs two of them
+        labelled = frame.loc[frame[group].notna()]
+        per_group = _labels(labelled[columns.cluster]).groupby(_labels(labelled[group]).to_numpy()).nunique()
+        single = per_group[per_group < 2]
         if len(single):
-            raise DataError(f"{source}: stratum '{printable(single.index[0])}' of column '{printable(columns.strata)}' "
-                            f"has a single {'cluster' if columns.cluster else 'row'}, so its variance cannot be estimated; "
-                            f"merge it with a neighbouring stratum")
+            raise DataError(f"{source}: group '{printable(single.index[0])}' of '{printable(group)}' has a single "
+                            f"cluster of '{printable(columns.cluster)}' (every cluster lies within one group, so the "
+                            f"groups are independent samples), and cluster-robust standard errors need at least two in "
+                            f"each; fit without that group (--keep) or without the cluster column")
     from cfa_tool.data.labels import label_notes
 
     for part, unit, name in (("cluster", "cluster", columns.cluster), ("strata", "stratum", columns.strata)):
         if name is not None:
             notes += label_notes(frame, name, part=part, unit=unit)
     return frame, notes
+
+
+def shared_cluster(frame: pd.DataFrame, columns: DesignColumns, group: str | None):
+    """The first cluster with rows in more than one group (None when every cluster lies within one group)."""
+    if columns.cluster is None or group is None:
+        return None
+    labelled = frame.loc[frame[group].notna()]
+    pairs = pd.DataFrame({columns.cluster: _labels(labelled[columns.cluster]),
+                          group: _labels(labelled[group])}).drop_duplicates()
+    shared = pairs[columns.cluster].duplicated()
+    return pairs[columns.cluster][shared.to_numpy()].iloc[0] if shared.any() else None
+
+
+def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, group: str | None, source: str,
+                           estimation: str) -> None:
+    """A one-line error when groups share clusters (domains of one cluster sample) under an ``estimation`` (e.g.
+    'full-information ML') whose design-based errors are computed group by group."""
+    if columns is None:
+        return
+    cluster = shared_cluster(frame, columns, group)
+    if cluster is not None:
+        raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
+                        f"more than one group of '{printable(group)}'; groups that share clusters (domains of one "
+                        f"sample) are analysed with their clusters by continuous maximum likelihood with complete "
+                        f"rows, not yet by {estimation}: fit each group alone with its clusters (--keep "
+                        f"\"{printable(group)} = ...\"), or group by a column that clusters nest in")
+
+
+def refuse_lone_strata(design: RowDesign, columns: DesignColumns, source: str, why: str) -> None:
+    """A one-line error naming the first stratum with a single sampling unit among the rows analysed, for a
+    computation that cannot borrow a spread for it (``why``)."""
+    lone = design.lone_strata()
+    if lone:
+        raise DataError(f"{source}: stratum '{printable(lone[0])}' of column '{printable(columns.strata)}' has a single "
+                        f"{'cluster' if columns.cluster else 'row'} among the rows analysed, and {why}; merge it with a "
+                        f"neighbouring stratum in the data")
 
 
 def _labels(column: pd.Series) -> pd.Series:
@@ -322,18 +446,28 @@ WEIGHT_RANGE = (1e-100, 1e100)
 MAX_FREQUENCY_TOTAL = 1e9
 
 
-def row_design(frame: pd.DataFrame, columns: DesignColumns, kept: np.ndarray) -> RowDesign:
-    """The design of the rows ``kept`` (a mask over ``frame``), sampling weights rescaled to sum to their number."""
+def row_design(frame: pd.DataFrame, columns: DesignColumns, kept: np.ndarray, part: np.ndarray | None = None) -> RowDesign:
+    """The design of the rows ``kept`` (a mask over the rows of ``frame`` in ``part``, a mask over ``frame``; all of
+    them when None), sampling weights rescaled to sum to their number; cluster and stratum codes are those of the
+    whole ``frame``, so that they mean the same in every group."""
+    part = np.ones(len(frame), dtype=bool) if part is None else part
     if columns.weights is not None:
-        w = pd.to_numeric(frame[columns.weights]).to_numpy(dtype=float)[kept]
+        w = pd.to_numeric(frame[columns.weights]).to_numpy(dtype=float)[part][kept]
     else:
         w = np.ones(int(kept.sum()))
     given = (float(w.sum()), float(w @ w))
     if columns.kind is WeightKind.SAMPLING:
         w = w * (len(w) / w.sum())
-    codes = [pd.factorize(_labels(frame[name]).to_numpy()[kept])[0] if name is not None else None
-             for name in (columns.cluster, columns.strata)]
-    return RowDesign(w, columns.kind, *codes, given=given)
+    codes, names = [], []
+    for name in (columns.cluster, columns.strata):
+        if name is None:
+            codes.append(None)
+            names.append(())
+            continue
+        code, labels = pd.factorize(_labels(frame[name]).to_numpy())
+        codes.append(code[part][kept])
+        names.append(tuple(str(label) for label in labels))
+    return RowDesign(w, columns.kind, *codes, given=given, cluster_names=names[0], strata_names=names[1])
 
 
 def kept_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, missing) -> np.ndarray:
@@ -365,7 +499,14 @@ def design_summary(frame: pd.DataFrame, columns: DesignColumns, moments: list) -
     clusters = sum(len(np.unique(m.design.clusters)) for m in moments) if columns.cluster else None
     strata = len(pd.unique(_labels(frame[columns.strata]))) if columns.strata else None
     group_rows = tuple(len(m.design.weights) for m in moments) if len(moments) > 1 else ()
-    return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows)
+    designs = [m.design for m in moments]
+    shared = len(designs) > 1 and shared_clusters(designs)
+    if shared:
+        joint = joint_design(designs)
+        clusters, lone = len(joint.cluster_names), joint.lone_strata()
+    else:
+        lone = tuple(dict.fromkeys(name for d in designs for name in d.lone_strata()))
+    return SampleDesign(columns, rows, total, kish, clusters, strata, group_rows, lone, shared)
 
 
 
@@ -373,11 +514,9 @@ def apply_design(groups: list, frame: pd.DataFrame, group_column: str | None, na
                  columns: DesignColumns, missing) -> list:
     """Each group's (label, SampleMoments) with the design of its rows attached."""
     out = []
+    keys = _labels(frame[group_column]) if group_column is not None else None
     for label, moments in groups:
-        part = frame
-        if group_column is not None:
-            keys = _labels(frame[group_column])
-            part = frame.loc[(keys == label).to_numpy()]
-        kept = kept_rows(part, names, source, missing)
-        out.append((label, with_row_design(moments, row_design(part, columns, kept))))
+        part = (keys == label).to_numpy() if keys is not None else np.ones(len(frame), dtype=bool)
+        kept = kept_rows(frame.loc[part], names, source, missing)
+        out.append((label, with_row_design(moments, row_design(frame, columns, kept, part))))
     return out

@@ -10,60 +10,125 @@ and weights w_i that sum to N, the covariance of the weighted mean of the s_i is
   with clusters c in strata h (one stratum when none is given; each row its own cluster when
   strata come without clusters): the linearization estimator of survey statistics
   (Binder 1983; Wolter 2007, on linearization), zbar_h the mean of the stratum's cluster sums.
+  A stratum with a single cluster (C_h = 1) has no spread of its own: its sum is centred at the
+  mean of all clusters' sums instead, with factor 1, a conservative choice that counts the
+  differences between strata as variance (Lumley 2010, on strata with a single sampled unit;
+  recalled from memory, the alternative to collapsing strata, Rust & Kalton 1987; Wolter 2007).
 
 Without a design every row weighs one and the first form is the ordinary (1/N) sum s_i s_i'.
+
+Several groups fitted together are either independent samples (every cluster within one group:
+the covariance is block-diagonal over groups, each block the group's own) or domains of one
+sample that share clusters: their estimating equations are stacked and the covariance of all
+groups' contributions together is the same estimator over the joint rows, each cluster's sum
+gathering its rows of every group, so the blocks between groups are not zero (Binder 1983;
+Skinner, Holt & Smith 1989, on domain estimation; recalled from memory).
 """
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 
+from cfa_tool.data.sample_design import joint_design, shared_clusters
 from cfa_tool.method import WeightKind
+
+
+def _unit_sums(contributions: np.ndarray, design) -> tuple[np.ndarray, np.ndarray, float]:
+    """(z, f, N) with design_meat = (z f)' z / N: z the sampling units' weighted sums of the contributions,
+    centred as the design says, and f each unit's factor."""
+    if design is None:
+        return contributions, np.ones(len(contributions)), float(len(contributions))
+    w = design.weights
+    total = float(w.sum())
+    if design.clusters is None and design.strata is None:
+        if design.kind is WeightKind.FREQUENCY:  # sum_i w_i s_i s_i'
+            return contributions * np.sqrt(w)[:, None], np.ones(len(w)), total
+        return contributions * w[:, None], np.ones(len(w)), total
+    unit_of_row, stratum_of_unit = design.sampling_units()
+    sums = np.zeros((len(stratum_of_unit), contributions.shape[1]))
+    np.add.at(sums, unit_of_row, contributions * w[:, None])
+    counts = np.bincount(stratum_of_unit)
+    c = counts[stratum_of_unit].astype(float)  # the units of each unit's stratum
+    if design.strata is None:  # one stratum, the sums add up to zero at the estimates: not centred
+        return sums, np.where(c > 1, c / np.maximum(c - 1.0, 1.0), 0.0), total
+    means = np.zeros((len(counts), contributions.shape[1]))
+    np.add.at(means, stratum_of_unit, sums)
+    means /= np.maximum(counts, 1)[:, None]
+    lone = c == 1
+    centre = np.where(lone[:, None], sums.mean(axis=0), means[stratum_of_unit])
+    return sums - centre, np.where(lone, 1.0, c / np.maximum(c - 1.0, 1.0)), total
 
 
 def design_meat(contributions: np.ndarray, design) -> np.ndarray:
     """(1/N) times the design-based sum of outer products of the rows' ``contributions`` (n x k);
     ``design`` a :class:`cfa_tool.data.sample_design.RowDesign` or None (every row weighs one)."""
-    if design is None:
-        return contributions.T @ contributions / len(contributions)
-    w = design.weights
-    total = float(w.sum())
-    weighted = contributions * w[:, None]
-    if design.clusters is None and design.strata is None:
-        if design.kind is WeightKind.FREQUENCY:
-            return weighted.T @ contributions / total
-        return weighted.T @ weighted / total
-    units = design.clusters if design.clusters is not None else np.arange(len(w))
-    strata = design.strata if design.strata is not None else np.zeros(len(w), dtype=int)
-    # one code per (stratum, cluster): clusters are nested in strata
-    pair_codes, unit_of_row = np.unique(np.stack([strata, units], axis=1), axis=0, return_inverse=True)
-    unit_of_row = unit_of_row.ravel()
-    sums = np.zeros((len(pair_codes), contributions.shape[1]))
-    np.add.at(sums, unit_of_row, weighted)
-    stratum_of_unit = pair_codes[:, 0]
-    meat = np.zeros((contributions.shape[1],) * 2)
-    for h in np.unique(stratum_of_unit):
-        z = sums[stratum_of_unit == h]
-        c = len(z)
-        if c < 2:
-            continue
-        if design.strata is not None:
-            z = z - z.mean(axis=0)
-        meat += c / (c - 1) * z.T @ z
-    return meat / total
+    z, f, total = _unit_sums(contributions, design)
+    return (z * f[:, None]).T @ z / total
 
 
-def moment_covariance(rows: np.ndarray, design, with_means: bool) -> np.ndarray:
-    """Gamma: the asymptotic covariance of sqrt(N)(s - sigma) under the design, s the weighted means and
-    vech of the weighted covariance (Browne 1984 without a design; Muthen & Satorra 1995 with one)."""
+@dataclass(frozen=True)
+class GroupsMeat:
+    """The covariance Omega of sqrt(N)(s_g - sigma_g) stacked over groups (N the rows of all groups together),
+    held as each group's units' sums z_g (scaled by N / N_g) and factors f_g, Omega_gh = (z_g f)' z_h / N;
+    blocks between groups are zero unless the groups share clusters (module docstring)."""
+
+    sums: tuple[np.ndarray, ...]
+    factors: tuple[np.ndarray, ...]
+    total: float
+    shared: bool
+
+    def block(self, g: int) -> np.ndarray:
+        """Omega_gg."""
+        z = self.sums[g]
+        return (z * self.factors[g][:, None]).T @ z / self.total
+
+    def middle(self, mats: list[np.ndarray]) -> np.ndarray:
+        """sum_gh M_g' Omega_gh M_h for each group's M_g (k_g x q)."""
+        projected = [z @ m for z, m in zip(self.sums, mats)]
+        if self.shared:
+            y = sum(projected)
+            return (y * self.factors[0][:, None]).T @ y / self.total
+        return sum((y * f[:, None]).T @ y for y, f in zip(projected, self.factors)) / self.total
+
+
+def groups_meat(contributions: list[np.ndarray], designs: list) -> GroupsMeat:
+    """:class:`GroupsMeat` of each group's rows' ``contributions`` (n_g x k_g) under its ``designs`` (RowDesign or
+    None, with the cluster and stratum codes of one data set); each group's contributions are scaled by N / N_g,
+    N_g the sum of its weights, so that a group's block is its own design-based covariance over its share of N."""
+    totals = [float(len(c)) if d is None else d.total for c, d in zip(contributions, designs)]
+    total = sum(totals)
+    scaled = [c * (total / t) for c, t in zip(contributions, totals)]
+    if len(designs) > 1 and shared_clusters(designs):
+        joint = joint_design(designs)
+        starts = np.cumsum([0] + [len(c) for c in scaled])
+        parts = []
+        for g, c in enumerate(scaled):
+            embedded = np.zeros((int(starts[-1]), c.shape[1]))
+            embedded[starts[g]:starts[g + 1]] = c
+            parts.append(_unit_sums(embedded, joint))
+        return GroupsMeat(tuple(z for z, _, _ in parts), tuple(f for _, f, _ in parts), total, True)
+    parts = [_unit_sums(c, d) for c, d in zip(scaled, designs)]
+    return GroupsMeat(tuple(z for z, _, _ in parts), tuple(f for _, f, _ in parts), total, False)
+
+
+def moment_contributions(rows: np.ndarray, design, with_means: bool) -> np.ndarray:
+    """Each row's contribution to the weighted means (when ``with_means``) and vech of the weighted covariance,
+    centred at their weighted mean (Browne 1984; Muthen & Satorra 1995)."""
     w = np.ones(len(rows)) if design is None else design.weights
     Z = rows - w @ rows / w.sum()
     J, I = np.triu_indices(rows.shape[1])  # vech order: lower triangle, column by column
     parts = [Z] if with_means else []
     parts.append(Z[:, I] * Z[:, J])
     D = np.hstack(parts)
-    D = D - w @ D / w.sum()
-    return design_meat(D, design)
+    return D - w @ D / w.sum()
+
+
+def moment_covariance(rows: np.ndarray, design, with_means: bool) -> np.ndarray:
+    """Gamma: the asymptotic covariance of sqrt(N)(s - sigma) under the design, s the weighted means and
+    vech of the weighted covariance (Browne 1984 without a design; Muthen & Satorra 1995 with one)."""
+    return design_meat(moment_contributions(rows, design, with_means), design)
 
 
 def ordinal_design_covariance(moments):

@@ -13,7 +13,8 @@ derivatives of the implied moments:
 * robust RMSEA, CFI and TLI estimate noncentrality as T - c df
   (Brosseau-Liard, Savalei & Li 2012; Brosseau-Liard & Savalei 2014).
 
-With groups, every block is weighted by the group's share of N.
+With groups, every block is weighted by the group's share of N; groups that share clusters (domains of one
+cluster sample) have a joint Gamma whose blocks between groups are not zero (cfa_tool.inference.design).
 """
 
 from __future__ import annotations
@@ -26,7 +27,7 @@ from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import scaled_inverse
 from cfa_tool.assessment.fit_indices import cfi_from, rmsea_from, rmsea_interval, tli_from
 from cfa_tool.estimation.ml import NormalLikelihood
-from cfa_tool.inference.design import moment_covariance
+from cfa_tool.inference.design import GroupsMeat, groups_meat, moment_contributions, moment_covariance
 from cfa_tool.method import FitTest
 from cfa_tool.model.implied import StructuredModel
 
@@ -90,36 +91,45 @@ def asymptotic_covariance(rows: np.ndarray, with_means: bool, design=None) -> np
 
 
 def _group_blocks(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood, g: int):
-    """(Delta, V, Gamma) of one group in the stacked (means, vech) layout."""
+    """(Delta, V) of one group in the stacked (means, vech) layout."""
     sigma = model.implied(theta, g)
     sigma_inv = np.linalg.inv(sigma)
     d_sigma, d_mu = model.jacobian(theta, g)
     I, J = vech_indices(model.p)
     delta = d_sigma[:, I, J].T  # (p*, q)
     V = normal_weight(sigma_inv)
-    moments = likelihood.groups[g]
-    if moments.rows is None:
+    if likelihood.groups[g].rows is None:
         raise ValueError("robust statistics need the raw data rows")
     if likelihood.means:
         delta = np.vstack([d_mu.T, delta])
         p = model.p
         V = np.block([[sigma_inv, np.zeros((p, V.shape[0]))], [np.zeros((V.shape[0], p)), V]])
-    gamma = asymptotic_covariance(moments.rows, likelihood.means, moments.design)
-    return delta, V, gamma
+    return delta, V
+
+
+def moments_meat(likelihood: NormalLikelihood, with_means: bool) -> GroupsMeat:
+    """Omega, the covariance of sqrt(N)(s_g - sigma_g) over the groups' moments under their design (Gamma_g / w_g
+    in a group's own block; blocks between groups when they share clusters; cfa_tool.inference.design)."""
+    groups = likelihood.groups
+    return groups_meat([moment_contributions(g.rows, g.design, with_means) for g in groups], [g.design for g in groups])
 
 
 def robust_parts(model: StructuredModel, theta: np.ndarray, likelihood: NormalLikelihood) -> tuple[np.ndarray, float]:
-    """(robust covariance of theta, tr(U Gamma)) summed over groups."""
+    """(robust covariance of theta, tr(U Omega)) of the groups' stacked moments, W = blockdiag(w_g V_g): the
+    meat sum_gh w_g w_h Delta_g' V_g Omega_gh V_h Delta_h, whose blocks between groups are zero for independent
+    samples (then sum_g w_g Delta_g' V_g Gamma_g V_g Delta_g)."""
     q = len(theta)
     bread = np.zeros((q, q))
-    meat = np.zeros((q, q))
     trace_vg = 0.0
+    omega = moments_meat(likelihood, likelihood.means)
+    weighted = []
     for g, w in enumerate(likelihood.weights):
-        delta, V, gamma = _group_blocks(model, theta, likelihood, g)
+        delta, V = _group_blocks(model, theta, likelihood, g)
         VD = V @ delta
         bread += w * delta.T @ VD
-        meat += w * VD.T @ gamma @ VD
-        trace_vg += float(np.sum(V * gamma))
+        weighted.append(w * VD)
+        trace_vg += w * float(np.sum(V * omega.block(g)))
+    meat = omega.middle(weighted)
     inv = scaled_inverse(bread)
     cov = inv @ meat @ inv / likelihood.n_total
     trace_ug = trace_vg - float(np.sum(inv * meat))
@@ -127,9 +137,11 @@ def robust_parts(model: StructuredModel, theta: np.ndarray, likelihood: NormalLi
 
 
 def baseline_trace(likelihood: NormalLikelihood) -> float:
-    """tr(U Gamma) of the independence model (diagonal Sigma = diag S; means saturated)."""
+    """tr(U Omega) of the independence model (diagonal Sigma = diag S; means saturated): its parameters are each
+    group's own, so only the groups' own blocks of Omega enter."""
     total = 0.0
-    for g in likelihood.groups:
+    omega = moments_meat(likelihood, False)
+    for k, (g, w) in enumerate(zip(likelihood.groups, likelihood.weights)):
         p = len(g.covariance)
         d = np.diag(g.covariance)
         sigma_inv = np.diag(1.0 / d)
@@ -137,7 +149,7 @@ def baseline_trace(likelihood: NormalLikelihood) -> float:
         V = normal_weight(sigma_inv)
         delta = (I == J)[:, None] * (I[:, None] == np.arange(p)[None, :])  # d vech(Sigma) / d sigma_ii
         delta = delta.astype(float)
-        gamma = asymptotic_covariance(g.rows, False, g.design)
+        gamma = w * omega.block(k)
         VD = V @ delta
         bread = delta.T @ VD
         inv = np.linalg.inv(bread)

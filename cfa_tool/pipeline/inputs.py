@@ -19,7 +19,8 @@ from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
-from cfa_tool.data.sample_design import DesignColumns, apply_design, check_design, design_columns, design_summary
+from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
+                                         refuse_shared_clusters)
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
 from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
@@ -202,6 +203,9 @@ def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None 
                                         values=values))]
     else:
         _check_group_column(spec, group)
+        if missing == MissingData.FULL_INFORMATION:
+            refuse_shared_clusters(frame, design, group, source, "full-information ML (rows with missing answers; "
+                                   "--incomplete-rows listwise keeps complete rows only)")
         groups, no_group = split_moments(frame, group, spec.observed_names, source, reference_group, missing, weights)
         notes = _no_group_notes(no_group, group) + label_notes(frame, group)
     if design is not None:
@@ -489,13 +493,15 @@ def with_design(result: FitResult, design) -> FitResult:
         problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,
                              "check the weights (a few rows may carry most of them), trim extreme weights by the survey's "
                              "rules, or report the unweighted fit beside the weighted one."),)
+    lone = design.lone_caution()  # conservative, not optimistic: a note, and the methods paragraph says it
+    warnings = result.warnings + ((lone,) if lone and lone not in result.warnings else ())
     fit = result.fit
     if fit is not None and design.columns.weights is not None and design.columns.kind is WeightKind.SAMPLING:
         # a weighted log-likelihood is a pseudo-likelihood: information criteria built on it would mislead
         fit = replace(fit, log_likelihood=None, aic=None, bic=None, sabic=None)
     # the sandwich's middle is summed by cluster: the method says so, and the status line follows from it
     method = replace(result.method, clustered=design.columns.cluster is not None)
-    return replace(result, design=design, fit=fit, method=method,
+    return replace(result, design=design, fit=fit, method=method, warnings=warnings,
                    estimator=f"{method.sentence(len(result.groups))}; {design.status()}", problems=problems)
 
 
@@ -651,6 +657,7 @@ def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, ref
         raise OptionError(f"continuous items beside ordinal ones in several groups are not yet fitted with a sampling "
                           f"design, so the {design.names[0][0]} column '{design.names[0][1]}' cannot apply; declare "
                           f"every item ordinal, fit the groups without the design, or fit one group at a time")
+    refuse_shared_clusters(frame, design, group, source, "the least-squares fit of ordinal items")
     groups, no_group = split_ordinal_moments(frame, group, spec.observed_names, source, reference_group, pairwise,
                                              design, continuous)
     groups = [(label, ordinal_design_covariance(m)) for label, m in groups]
@@ -791,7 +798,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                    float(w[none].sum()))
     return CheckResult(spec, source, len(answered), complete, len(answered) - complete - odd_complete - empty, empty,
                        coverage, labels, bool(ordinal_items), sample_design,
-                       sample_design.caution(table.n_free) if sample_design is not None else None, tuple(notes),
+                       sample_design.caution(table.n_free) if sample_design is not None else None,
+                       tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
                        odd_value_problems(loaded), len(frame) - len(answered), odd_complete,
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted)
 

@@ -46,7 +46,7 @@ from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
 from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fits
-from cfa_tool.data.sample_design import check_design, design_columns, design_summary
+from cfa_tool.data.sample_design import check_design, design_columns, design_summary, refuse_lone_strata
 from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.pipeline.inputs import (_fit_rows, converged, design_test, moments_for, odd_values_named,
                                       ordinal_items_of, read_inputs_with_notes, refit_missing_handling, with_design,
@@ -519,6 +519,8 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     if design is not None:
         options = design_test(options, design)
         [(_, moments)], _ = moments_for(spec, frame, source, missing=handling, design=design)
+        refuse_lone_strata(moments.design, design, source, "the resamples would draw that one again and again, "
+                           "so its stratum would add no variation")
     else:
         moments = sample_moments(frame, spec.observed_names, source, missing=handling)
     with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
