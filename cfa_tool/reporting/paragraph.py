@@ -157,7 +157,8 @@ def _scales_in_words(chosen, every) -> str:
         subject = f"the scales of {whose} were" if len(scales) > 1 and whose != "each factor" else f"the scale of {whose} was"
         if method == "marker":
             markers = _list([f"{s.marker} for {s.factor}" for s in scales]) if len(scales) > 1 else scales[0].marker
-            parts.append(f"{subject} set by fixing the loading of one indicator to 1 ({markers})")
+            parts.append(f"{subject} set by fixing the loading of one indicator to 1 ({markers})"
+                         + _keyed_markers(scales))
         elif method == "variance":
             which = "disturbance variance" if disturbance else "variance"
             whose = _list(names) if disturbance else whose
@@ -171,6 +172,24 @@ def _scales_in_words(chosen, every) -> str:
             parts.append(f"{subject} set by parameters the model fixes")
     sentence = "; ".join(parts)
     return sentence[0].upper() + sentence[1:] + "."
+
+
+def _keyed_markers(scales) -> str:
+    """How a 'reversed' statement chose markers: a declared-reversed first item is passed over, so that the
+    factor points the way of its trait; a factor whose every item is declared reversed has its marker fixed
+    at -1.  Empty when the statement changed no marker."""
+    passed = [s for s in scales if s.passed_over]
+    against = [s for s in scales if s.marker_loading < 0]
+    words = []
+    if passed:
+        items = _list([x for s in passed for x in s.passed_over])
+        several = sum(len(s.passed_over) for s in passed) > 1
+        words.append(f"{items}, declared reverse-keyed, {'were' if several else 'was'} not taken as "
+                     f"marker{'s' if several else ''}, so that each factor points the way of its trait")
+    if against:
+        words.append(f"every item of {_list([s.factor for s in against])} is declared reverse-keyed, so the "
+                     f"loading of {_list([s.marker for s in against])} was fixed to -1 instead")
+    return f"; {'; '.join(words)}" if words else ""
 
 
 def _block_sentences(result, d) -> str:

@@ -268,9 +268,20 @@ def _scale_phrase(result, factor: str) -> str:
     if scale is None:
         return ""
     if scale.method == "marker" and scale.marker:
-        return f"scale: loading of {scale.marker} fixed at 1"
+        return f"scale: loading of {scale.marker} fixed at {scale.marker_loading:g}{_marker_reason(scale)}"
     return {"variance": "scale: variance fixed at 1", "effects": "scale: loadings average 1",
             "fixed by the model": "scale: fixed by the model"}.get(scale.method, f"scale: {scale.method}")
+
+
+def _marker_reason(scale) -> str:
+    """Why a marker is not the factor's first item or is fixed at -1 (a 'reversed' statement), in a clause
+    that follows the marker's fixed loading; empty otherwise."""
+    if scale.marker_loading < 0:
+        return f", as every item of {scale.factor} is declared reversed"
+    if scale.passed_over:
+        listed = ", ".join(scale.passed_over)
+        return f", not {listed}, declared reversed"
+    return ""
 
 
 def _interval(low: float, high: float) -> str:
