@@ -34,6 +34,7 @@ covariance, Theta the residual covariances and k the keys:
 
 from __future__ import annotations
 
+from collections.abc import Collection
 from dataclasses import dataclass
 from enum import Enum
 
@@ -101,6 +102,25 @@ class Htmt:
         return out
 
 
+def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...],
+              declared: Collection[str] | None) -> tuple[np.ndarray, np.ndarray]:
+    """The one rule that keys the items of every keyed sum (reliability here, sum scores in scoring/quality.py):
+    (K, direction).  K (p, m): item i's key for factor j, 0 where ``member`` (the items that measure j, directly
+    or through the factors below it) is False.
+
+    With a 'reversed' statement (``declared``: the items it names) the keys are the declaration's: -1 for a
+    declared item, +1 otherwise, whatever the loadings' signs.  Without one they follow the signs of the total
+    loadings G: an item whose loading has the sign opposite to most of its factor's items (ties broken by the
+    sum of the loadings) is reversed.  ``direction`` (m): +1 where the factor points the keyed way (most keyed
+    items load positively), -1 where it points against its keys."""
+    signs = np.where(G < 0, -1.0, 1.0)
+    keys = np.array([-1.0 if declared is not None and x in declared else 1.0 for x in observed])[:, None]
+    vote, tie_break = (keys * signs * member).sum(axis=0), (keys * G * member).sum(axis=0)
+    direction = np.where(np.where(vote == 0, tie_break, vote) < 0, -1.0, 1.0)  # each factor's majority
+    K = (signs * direction if declared is None else keys) * member
+    return K, direction
+
+
 def cronbach_alpha(S: np.ndarray, keys: np.ndarray | None = None) -> float:
     """Cronbach's (1951) alpha of the sum of items with covariance matrix S, each item multiplied by
     its key (+1, or -1 for a reversed item)."""
@@ -137,20 +157,12 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     direct = np.abs(L) > 0
     higher = np.abs(mats.B).sum(axis=0) > 0
     signs = np.where(G < 0, -1.0, 1.0)
+    K, direction = item_keys(G, member, observed, declared)
     if declared is None:
-        keys = signs
-        vote, tie_break = (signs * member).sum(axis=0), (G * member).sum(axis=0)
-    else:
-        keys = np.repeat(np.array([-1.0 if x in declared else 1.0 for x in observed])[:, None], m, axis=1)
-        vote, tie_break = (keys * signs * member).sum(axis=0), (keys * G * member).sum(axis=0)
-    direction = np.where(np.where(vote == 0, tie_break, vote) < 0, -1.0, 1.0)  # each factor's majority
-    if declared is None:
-        K = signs * direction * member
         against = np.zeros((p, m), dtype=bool)
     else:
-        K = keys * member
         # contradictions are reported once, for the factor the items load on directly
-        against = member & (keys * signs != direction) & (G != 0) & ~higher
+        against = member & (K * signs != direction) & (G != 0) & ~higher
     totals = np.einsum("ij,ij->j", K, sigma @ K)
     omega = np.einsum("ij,ij->j", K, G) ** 2 * np.diag(phi) / totals
     omega_total = 1.0 - np.einsum("ij,ij->j", K, theta @ K) / totals

@@ -26,11 +26,13 @@ A row that misses one of the sum's items gets no sum (a sum over fewer items is 
 
 from __future__ import annotations
 
+from collections.abc import Collection
 from dataclasses import dataclass
 
 import numpy as np
 
 from cfa_tool.assessment.ordinal_reliability import observed_sum_omega
+from cfa_tool.assessment.reliability import item_keys
 from cfa_tool.numerics.plain import clean
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
 from cfa_tool.scoring.model import OrdinalScoringModel, ScoringModel, checked_covariance
@@ -130,18 +132,18 @@ def method_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEA
     return tuple(out)
 
 
-def sum_keys(model: ScoringModel) -> np.ndarray:
+def sum_keys(model: ScoringModel, declared: Collection[str] | None = None) -> np.ndarray:
     """(p, m) keys of the sum scores: +1 or -1 for the items that measure each factor (directly or through
-    the factors below it; the sign of the total loading), 0 for the others."""
+    the factors below it), 0 for the others, by the rule the fit's reliability uses
+    (:func:`cfa_tool.assessment.reliability.item_keys`): the declared keys when the model has a 'reversed'
+    statement (``declared``: the items it names), the signs of the loadings otherwise."""
     G, L = model.total_loadings, model.loadings
-    reach = model.reach
-    sign = np.where(np.sign(G) != 0, np.sign(G), np.sign(L))
-    return np.where(reach, sign, 0.0)
+    return item_keys(np.where(G != 0, G, L), model.reach, model.items, declared)[0]
 
 
-def sum_scores(model: ScoringModel, rows: np.ndarray) -> np.ndarray:
-    """(n, m) keyed unit-weighted sums; NaN where a row misses one of the factor's items."""
-    keys = sum_keys(model)
+def sum_scores(model: ScoringModel, rows: np.ndarray, declared: Collection[str] | None = None) -> np.ndarray:
+    """(n, m) keyed unit-weighted sums (keys: :func:`sum_keys`); NaN where a row misses one of the factor's items."""
+    keys = sum_keys(model, declared)
     rows = np.asarray(rows, dtype=float)
     filled = np.where(np.isnan(rows), 0.0, rows)
     sums = filled @ keys
@@ -149,10 +151,10 @@ def sum_scores(model: ScoringModel, rows: np.ndarray) -> np.ndarray:
     return np.where(incomplete, np.nan, sums)
 
 
-def sum_quality(model: ScoringModel) -> tuple[SumScore, ...]:
-    """Omega (McDonald 1999) and validity of each factor's keyed sum."""
+def sum_quality(model: ScoringModel, declared: Collection[str] | None = None) -> tuple[SumScore, ...]:
+    """Omega (McDonald 1999) and validity of each factor's keyed sum (keys: :func:`sum_keys`)."""
     sigma = checked_covariance(model)
-    keys = sum_keys(model)
+    keys = sum_keys(model, declared)
     G, phi, C = model.total_loadings, model.factor_covariance, model.item_factor_covariance
     out = []
     for f, name in enumerate(model.factors):
@@ -168,13 +170,13 @@ def sum_quality(model: ScoringModel) -> tuple[SumScore, ...]:
     return tuple(out)
 
 
-def ordinal_sum_quality(model: OrdinalScoringModel) -> tuple[SumScore, ...]:
+def ordinal_sum_quality(model: OrdinalScoringModel, declared: Collection[str] | None = None) -> tuple[SumScore, ...]:
     """Each factor's keyed sum of ordinal answers with its reliability (Green & Yang 2009); sums that would take in
     a continuous item beside the ordinal ones are left out (their codes are not answers to a threshold model).
     Validity (the sum's correlation with its factor) is not computed for them (NaN)."""
     base = model.base
     sigma = checked_covariance(base)
-    keys = sum_keys(base)
+    keys = sum_keys(base, declared)
     G, phi = base.total_loadings, base.factor_covariance
     mean = base.intercepts + G @ base.factor_means
     out = []
@@ -190,9 +192,11 @@ def ordinal_sum_quality(model: OrdinalScoringModel) -> tuple[SumScore, ...]:
     return tuple(out)
 
 
-def score_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEAR_METHODS) -> ScoreQuality:
-    """Everything :class:`ScoreQuality` holds, for one group."""
+def score_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEAR_METHODS,
+                  declared: Collection[str] | None = None) -> ScoreQuality:
+    """Everything :class:`ScoreQuality` holds, for one group (``declared``: the items of the model's 'reversed'
+    statement, None without one)."""
     rho = determinacy(model)
     return ScoreQuality(model.group, model.factors, tuple(float(v) for v in rho),
                         tuple(bool(v < DETERMINACY_CAUTION) for v in rho), _correlation(model.factor_covariance),
-                        method_quality(model, methods), sum_quality(model))
+                        method_quality(model, methods), sum_quality(model, declared))

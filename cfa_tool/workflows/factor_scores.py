@@ -296,8 +296,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     table = pd.DataFrame(columns)
     if id_name is not None and id_name in list(table.columns)[1:]:
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
-    quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group) \
-        if ordinal_items else _linear_quality(models)
+    quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
+                               spec) if ordinal_items else _linear_quality(models, spec)
     extra = duplicate_note(ids, "id column" if id_column is not None else "row names")
     if ids is not None and id_column is None:
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
@@ -444,12 +444,12 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes += label_notes(frame, group)
     if ordinal:
         quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, frame.index,
-                                   group_of_row, group)
+                                   group_of_row, group, spec)
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source} (loadings, thresholds and factor covariances); the quality figures "
                         f"(marginal reliability) are those of the scores of {source}.")
     else:
-        quality = _linear_quality(models)
+        quality = _linear_quality(models, spec)
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
@@ -744,13 +744,20 @@ def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, 
     return list(ordinal_score_inputs(_Fitted(table, StructuredModel(table), result.theta), groups)), list(labels)
 
 
-def _linear_quality(models) -> list[ScoreQuality]:
+def _linear_quality(models, spec) -> list[ScoreQuality]:
+    from cfa_tool.scoring.methods import LINEAR_METHODS
     from cfa_tool.scoring.quality import score_quality
 
-    return [score_quality(m) for m in models]
+    return [score_quality(m, LINEAR_METHODS, _declared(spec)) for m in models]
 
 
-def _ordinal_quality(models, labels, values, errors, position, kept, group_of_row, group) -> list[OrdinalQuality]:
+def _declared(spec):
+    """The items of the model's 'reversed' statement, None without one: the keys of the sums (one rule with the
+    fit's reliability, scoring.quality.sum_keys)."""
+    return frozenset(spec.reverse_keyed) if spec.reversed else None
+
+
+def _ordinal_quality(models, labels, values, errors, position, kept, group_of_row, group, spec) -> list[OrdinalQuality]:
     out = []
     for model_g, label in zip(models, labels):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(kept))
@@ -767,7 +774,7 @@ def _ordinal_quality(models, labels, values, errors, position, kept, group_of_ro
         phi = model_g.base.factor_covariance
         sd = np.sqrt(np.diag(phi))
         out.append(OrdinalQuality(label, model_g.base.factors, tuple(reliability), phi / np.outer(sd, sd), scores,
-                                  ordinal_sum_quality(model_g)))
+                                  ordinal_sum_quality(model_g, _declared(spec))))
     return out
 
 

@@ -21,13 +21,18 @@ NAMES = ["a1", "a2", "a3", "a4", "b1", "b2", "b3", "b4", "c1", "c2", "c3"]
 SIGNS = np.array([-1, 1, 1, 1, 1, -1, 1, 1, -1, -1, -1.0])
 
 
-@pytest.fixture(scope="module")
-def answers():
+def keyed_answers():
+    """The simulated answers of the module docstring (continuous, 800 rows)."""
     L = np.zeros((11, 3))
     L[0:4, 0], L[4:8, 1], L[8:11, 2] = 0.7, 0.7, 0.7
     L *= SIGNS[:, None]
     phi = np.array([[1, 0.5, 0.4], [0.5, 1, 0.3], [0.4, 0.3, 1]])
     return simulate_cfa(L, phi, np.diag(1 - (L**2).sum(axis=1)), 800, 8123, NAMES)
+
+
+@pytest.fixture(scope="module")
+def answers():
+    return keyed_answers()
 
 
 def _correlations(result, group=0):
@@ -36,10 +41,14 @@ def _correlations(result, group=0):
     return (C / np.outer(d, d))[:3, :3]
 
 
+def keyed_means(data) -> np.ndarray:
+    """(n, 3) each factor's keyed mean, by hand: each reversed answer turned around (its negative)."""
+    keyed = data[NAMES] * SIGNS
+    return np.column_stack([keyed[c].mean(axis=1) for c in (NAMES[0:4], NAMES[4:8], NAMES[8:11])])
+
+
 def _keyed_mean_correlations(data):
-    keyed = data[NAMES] * SIGNS  # by hand: each reversed answer turned around
-    means = np.column_stack([keyed[c].mean(axis=1) for c in (NAMES[0:4], NAMES[4:8], NAMES[8:11])])
-    return np.corrcoef(means.T)
+    return np.corrcoef(keyed_means(data).T)
 
 
 def test_a_reversed_first_item_is_passed_over_as_marker(answers):
