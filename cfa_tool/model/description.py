@@ -25,12 +25,15 @@ class FactorScale:
     below_higher_order: bool = False  # its variance parameter is a disturbance variance
     marker_loading: float = 1.0  # the marker's fixed loading: -1 when every candidate is declared reversed
     passed_over: tuple[str, ...] = ()  # declared-reversed items before the marker, not taken as marker
+    counted_reversed: tuple[str, ...] = ()  # effects coding: declared-reversed items, whose loadings count turned
 
     def to_dict(self) -> dict:
         out = {"factor": self.factor, "method": self.method, "marker": self.marker}
         if self.marker is not None and (self.marker_loading != 1.0 or self.passed_over):
             # only where a 'reversed' statement moved the marker, so that other models' results stay as they were
             out.update(marker_loading=self.marker_loading, reversed_items_passed_over=list(self.passed_over))
+        if self.counted_reversed:
+            out["loadings_counted_reversed"] = list(self.counted_reversed)
         return out
 
 
@@ -159,7 +162,9 @@ def _scales(spec: Spec, table: ParameterTable, group: int = 0) -> tuple[FactorSc
         elif any(p.kind == "factor_variance" for p in scale):
             out.append(FactorScale(name, "variance", None, endogenous))
         elif any(p.kind == "loading" and p.free for p in scale):
-            out.append(FactorScale(name, "effects", None, endogenous))
+            items = [p.variables[1] for p in own if p.kind == "loading"]
+            out.append(FactorScale(name, "effects", None, endogenous,
+                                   counted_reversed=tuple(x for x in items if (name, x) in keyed)))
         elif scale:
             marker = scale[0].variables[1]
             indicators = next(f.indicators for f in spec.factors if f.name.text == name)

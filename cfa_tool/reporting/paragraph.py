@@ -166,8 +166,11 @@ def _scales_in_words(chosen, every) -> str:
             parts.append(f"{subject} set by fixing {'their' if len(names) > 1 and whose != 'each factor' else 'its'} "
                          f"{which}{'s' if len(names) > 1 and whose != 'each factor' else ''} to 1")
         elif method == "effects":
+            turned = [x for s in scales for x in s.counted_reversed]
             parts.append(f"{subject} set by effects coding, the loadings of each factor constrained to average 1 "
-                         f"(Little, Slegers & Card, 2006)")
+                         f"(Little, Slegers & Card, 2006)" + (
+                             f", the loadings of {_list(turned)}, declared reverse-keyed, counted with their signs "
+                             f"turned" if turned else ""))
         else:
             parts.append(f"{subject} set by parameters the model fixes")
     sentence = "; ".join(parts)

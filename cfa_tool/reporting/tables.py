@@ -269,6 +269,8 @@ def _scale_phrase(result, factor: str) -> str:
         return ""
     if scale.method == "marker" and scale.marker:
         return f"scale: loading of {scale.marker} fixed at {scale.marker_loading:g}{_marker_reason(scale)}"
+    if scale.method == "effects" and scale.counted_reversed:
+        return f"scale: loadings average 1, with {', '.join(scale.counted_reversed)} (declared reversed) turned"
     return {"variance": "scale: variance fixed at 1", "effects": "scale: loadings average 1",
             "fixed by the model": "scale: fixed by the model"}.get(scale.method, f"scale: {scale.method}")
 

@@ -89,6 +89,10 @@ def test_other_scalings_point_the_way_of_the_keys(answers, scaling):
     if scaling == "effects":  # the keyed loadings average 1 (Little, Slegers & Card 2006, with keys)
         keyed = [loadings[("h", c)] * -1 for c in ("c1", "c2", "c3")]
         assert np.mean(keyed) == pytest.approx(1.0, abs=1e-9)
+        assert "Factor f (scale: loadings average 1, with a1 (declared reversed) turned)" in [
+            t.title for t in estimate_tables(other)]
+        assert ("(Little, Slegers & Card, 2006), the loadings of a1, b2, c1, c2, and c3, declared reverse-keyed, "
+                "counted with their signs turned") in " ".join(methods_paragraph(other).split())
 
 
 def test_without_a_reversed_statement_a_marker_against_its_items_is_named(answers):
