@@ -188,7 +188,7 @@ def _keyed_markers(scales) -> str:
         items = _list([x for s in passed for x in s.passed_over])
         several = sum(len(s.passed_over) for s in passed) > 1
         words.append(f"{items}, declared reverse-keyed, {'were' if several else 'was'} not taken as "
-                     f"marker{'s' if several else ''}, so that each factor points the way of its trait")
+                     f"marker{'s' if several else ''}, so that {'their factors point the way of their traits' if several else 'its factor points the way of its trait'}")
     if against:
         words.append(f"every item of {_list([s.factor for s in against])} is declared reverse-keyed, so the "
                      f"loading of {_list([s.marker for s in against])} was fixed to -1 instead")

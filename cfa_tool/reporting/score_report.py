@@ -39,7 +39,9 @@ def header_lines(result) -> list[str]:
             f"Scores ({methods}) of {result.rows} rows, one per row of the data in the file's order; columns: "
             f"{first}one per factor" + ("" if not result.standard_errors else
                                         " with its posterior standard deviation" if ScoreMethod.EXPECTED_A_POSTERIORI
-                                        in result.methods else " with its standard error")] + _design_line(fit)
+                                        in result.methods else " with its standard error")
+            + f"{' and method' if len(result.methods) > 1 else ''}, then per factor the number of its items the row "
+              f"answered"] + _design_line(fit)
 
 
 def _design_line(fit) -> list[str]:
@@ -164,15 +166,16 @@ def score_tables(result) -> list[ReportTable]:
 ABOUT_THE_FIT = "About the fit (not the scored data): "
 
 
-def notes(result) -> list[str]:
-    """The fit's notes (said to be about the fit when other data are scored), then the scores' own."""
+def warnings(result) -> list[str]:
+    """What the report says before its tables: the fit's warnings (said to be about the fit when other data are
+    scored), then the cautions about the rows' scores (rows scored without an answer to a factor's items)."""
     # the fit's note on reading the fit indices of ordinal items: the scores' report shows none
-    warnings = [w for w in result.fit.warnings if w != ORDINAL_NOTE]
-    if not result.scored_source:
-        return warnings + list(result.notes)
-    # the fit's advice named its own options; scoring other data takes none of them
-    option = f" ({Remedy.COMPLETE_ROWS.option})"
-    return [ABOUT_THE_FIT + w.replace(option, "") for w in warnings] + list(result.notes)
+    fitted = [w for w in result.fit.warnings if w != ORDINAL_NOTE]
+    if result.scored_source:
+        # the fit's advice named its own options; scoring other data takes none of them
+        option = f" ({Remedy.COMPLETE_ROWS.option})"
+        fitted = [ABOUT_THE_FIT + w.replace(option, "") for w in fitted]
+    return fitted + list(result.warnings)
 
 
 def scores_report(result):
@@ -182,5 +185,5 @@ def scores_report(result):
 
     return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", T.problem_notice(result.fit),
                   tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
-                  tuple(notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE),
-                  problem_table=T.problem_table(result.fit))
+                  tuple(result.notes), (SCORES_CAUTION, HIGH_STAKES_NOTE),
+                  problem_table=T.problem_table(result.fit), warnings=tuple(warnings(result)))
