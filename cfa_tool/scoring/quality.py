@@ -14,6 +14,12 @@ For complete answers and a linear score s = alpha + W'(x - mu) of factors F (wei
 * the correlations among each method's scores, beside the factors' correlations (Grice 2001 compares them:
   regression scores overstate them, Bartlett scores too as a rule, correlation-preserving scores keep them).
 
+Precision of one person's score (:func:`precision`), in the factor's units and in its standard deviations: the
+standard error SE, the root mean squared error of the score about its factor with every item answered; a 95%
+band of +/- 1.96 SE about the score (a normal approximation); and the smallest difference between two people's
+scores that exceeds chance at the 5% level, 1.96 sqrt(2) SE, the standard error of the difference of two
+independent errors (Gulliksen 1950; recalled from memory, common practice).
+
 Sum scores of ordinal items: the same keyed sums of the answers' codes, with the reliability of Green & Yang (2009)
 from the thresholds, loadings and factor covariances (:mod:`cfa_tool.assessment.ordinal_reliability`).
 
@@ -78,6 +84,37 @@ class SumScore:
                       "omega": self.omega, "validity": self.validity})
 
 
+#: the normal quantile of a two-sided 95% band
+Z95 = 1.959963984540054
+
+
+@dataclass(frozen=True)
+class Precision:
+    """How precise one person's score of one factor is (module docstring), for one method."""
+
+    factor: str
+    method: ScoreMethod
+    factor_sd: float  # the factor's standard deviation
+    reliability: float  # of the method's scores
+    standard_error: float  # root mean squared error of the score about its factor
+    band: float  # half-width of the 95% band, Z95 * SE
+    smallest_difference: float  # Z95 * sqrt(2) * SE
+
+    @property
+    def band_in_sd(self) -> float:
+        return self.band / self.factor_sd
+
+    @property
+    def smallest_difference_in_sd(self) -> float:
+        return self.smallest_difference / self.factor_sd
+
+    def to_dict(self) -> dict:
+        return clean({"factor": self.factor, "method": self.method.value, "factor_sd": self.factor_sd,
+                      "reliability": self.reliability, "standard_error": self.standard_error, "band_95": self.band,
+                      "band_95_in_sd": self.band_in_sd, "smallest_difference": self.smallest_difference,
+                      "smallest_difference_in_sd": self.smallest_difference_in_sd})
+
+
 @dataclass(frozen=True)
 class ScoreQuality:
     """Quality of each method's scores for one group (population values under the fitted model)."""
@@ -89,15 +126,24 @@ class ScoreQuality:
     factor_correlations: np.ndarray  # (m, m)
     methods: tuple[MethodQuality, ...]
     sums: tuple[SumScore, ...]
+    factor_sd: tuple[float, ...] = ()  # sqrt(Phi_kk)
 
     def method(self, method: ScoreMethod) -> MethodQuality:
         return next(q for q in self.methods if q.method is method)
+
+    def precision(self, method: ScoreMethod) -> tuple[Precision, ...]:
+        """Each scored factor's :class:`Precision` for ``method`` (module docstring)."""
+        q = self.method(method)
+        return tuple(Precision(f, method, sd, rel, se, Z95 * se, Z95 * np.sqrt(2.0) * se)
+                     for f, sd, rel, se in zip(self.factors, self.factor_sd, q.reliability, q.root_mean_squared_error)
+                     if np.isfinite(se) and np.isfinite(rel))
 
     def to_dict(self) -> dict:
         return clean({"group": self.group, "factors": list(self.factors), "determinacy": list(self.determinacy),
                       "low_determinacy": list(self.low_determinacy), "determinacy_caution": DETERMINACY_CAUTION,
                       "factor_correlations": self.factor_correlations.tolist(),
-                      "methods": [q.to_dict() for q in self.methods], "sums": [s.to_dict() for s in self.sums]})
+                      "methods": [q.to_dict() for q in self.methods], "sums": [s.to_dict() for s in self.sums],
+                      "precision": [p.to_dict() for q in self.methods for p in self.precision(q.method)]})
 
 
 def determinacy(model: ScoringModel) -> np.ndarray:
@@ -199,4 +245,5 @@ def score_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEAR
     rho = determinacy(model)
     return ScoreQuality(model.group, model.factors, tuple(float(v) for v in rho),
                         tuple(bool(v < DETERMINACY_CAUTION) for v in rho), _correlation(model.factor_covariance),
-                        method_quality(model, methods), sum_quality(model, declared))
+                        method_quality(model, methods), sum_quality(model, declared),
+                        tuple(float(v) for v in np.sqrt(np.clip(np.diag(model.factor_covariance), 0.0, None))))
