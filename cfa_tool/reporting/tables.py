@@ -745,23 +745,31 @@ def category_table(result, group: int = 0) -> ReportTable | None:
     d = result.groups[group].data
     if not d.categories or not any(d.categories):
         return None
-    width = max(len(c) for c in d.categories)
-    rows, values = [], []
+    codes = sorted({v for cats in d.categories for v, _ in cats})  # the columns: the answer codes themselves
+    rows, values, single = [], [], []
     for name, cats in zip(d.variables, d.categories):
         if not cats:
             continue
         total = sum(c for _, c in cats) or 1
-        rows.append([name] + [f"{v:g}: {c} ({100 * c / total:.0f}%)" for v, c in cats] + [""] * (width - len(cats)))
-        values.append([name] + [c for _, c in cats] + [None] * (width - len(cats)))
+        count = dict(cats)
+        rows.append([name] + [f"{count[v]} ({100 * count[v] / total:.0f}%)" if v in count else "" for v in codes])
+        values.append([name] + [count.get(v) for v in codes])
+        single += [f"{name} {v:g}" for v, c in cats if c == 1]
     label = result.groups[group].label
     where = f" in group {label}" if label is not None else ""
     weights = _weights_column(result)
+    lonely = ("" if not single else
+              f" Answered by one row only: {', '.join(single)}; a threshold next to such a category rests on that one "
+              f"answer and is unstable (merge the category with its neighbour, or check the answer).")
     return _table(f"categories_{group}", f"Answers per category{where} (rows analysed)",
-                  [("Item", "l")] + [(str(k + 1), "r") for k in range(width)], rows,
-                  "Each cell: the answer value, the rows giving it and their share. Categories nobody chose do not "
-                  "appear (their threshold cannot be estimated)." + ("" if weights is None else
-                  f" Rows are counted once each, unweighted; the thresholds use the shares weighted by {weights}."),
-                  values=(["Item"] + [f"Category {k + 1} rows" for k in range(width)], values))
+                  [("Item", "l")] + [(f"{v:g}", "r") for v in codes], rows,
+                  "Each column is an answer code; each cell: the rows giving it and their share. An empty cell: a "
+                  "code the item's rows never gave (no threshold is estimated for it)." + lonely + (
+                      "" if weights is None else
+                      f" Rows are counted once each, unweighted; the thresholds use the shares weighted by {weights}."),
+                  flagged=tuple(i for i, (name, cats) in enumerate((n, c) for n, c in zip(d.variables, d.categories) if c)
+                                if any(c == 1 for _, c in cats)),
+                  values=(["Item"] + [f"Answer {v:g} rows" for v in codes], values))
 
 
 def label_tables(result) -> list[ReportTable]:
