@@ -746,15 +746,17 @@ def category_table(result, group: int = 0) -> ReportTable | None:
     if not d.categories or not any(d.categories):
         return None
     codes = sorted({v for cats in d.categories for v, _ in cats})  # the columns: the answer codes themselves
-    rows, values, single = [], [], []
+    rows, values, single, flagged = [], [], [], []
     for name, cats in zip(d.variables, d.categories):
         if not cats:
             continue
         total = sum(c for _, c in cats) or 1
         count = dict(cats)
+        if 1 in count.values():  # a category of one answer: the item's row is flagged
+            flagged.append(len(rows))
+            single += [f"{name} {v:g}" for v, c in cats if c == 1]
         rows.append([name] + [f"{count[v]} ({100 * count[v] / total:.0f}%)" if v in count else "" for v in codes])
         values.append([name] + [count.get(v) for v in codes])
-        single += [f"{name} {v:g}" for v, c in cats if c == 1]
     label = result.groups[group].label
     where = f" in group {label}" if label is not None else ""
     weights = _weights_column(result)
@@ -767,8 +769,7 @@ def category_table(result, group: int = 0) -> ReportTable | None:
                   "code the item's rows never gave (no threshold is estimated for it)." + lonely + (
                       "" if weights is None else
                       f" Rows are counted once each, unweighted; the thresholds use the shares weighted by {weights}."),
-                  flagged=tuple(i for i, (name, cats) in enumerate((n, c) for n, c in zip(d.variables, d.categories) if c)
-                                if any(c == 1 for _, c in cats)),
+                  flagged=tuple(flagged),
                   values=(["Item"] + [f"Answer {v:g} rows" for v in codes], values))
 
 
