@@ -34,6 +34,7 @@ covariance, Theta the residual covariances and k the keys:
 
 from __future__ import annotations
 
+from collections.abc import Collection
 from dataclasses import dataclass
 from enum import Enum
 
@@ -71,9 +72,14 @@ class FactorReliability:
     # ordinal items: the reliability of the keyed sum of the answers' codes (Green & Yang 2009;
     # assessment/ordinal_reliability.py), beside the coefficients above, which describe the latent responses
     observed_sum_omega: float | None = None
+    # the factor points against the keyed direction of its items: most items not declared reversed load
+    # negatively (a 'reversed' statement), or, without one, most items load against the marker's fixed sign
+    points_against: bool = False
 
     def to_dict(self) -> dict:
         d = dict(vars(self))  # every field is a number, a word or a tuple of them, converted below
+        if not self.points_against:
+            del d["points_against"]  # written only when it warns
         d["items"] = list(self.items)
         d["reversed"] = list(self.reversed)
         d["keying"] = self.keying.value
@@ -94,6 +100,25 @@ class Htmt:
         out = dict(vars(self))
         out["why_missing"] = self.why_missing or None
         return out
+
+
+def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...],
+              declared: Collection[str] | None) -> tuple[np.ndarray, np.ndarray]:
+    """The one rule that keys the items of every keyed sum (reliability here, sum scores in scoring/quality.py):
+    (K, direction).  K (p, m): item i's key for factor j, 0 where ``member`` (the items that measure j, directly
+    or through the factors below it) is False.
+
+    With a 'reversed' statement (``declared``: the items it names) the keys are the declaration's: -1 for a
+    declared item, +1 otherwise, whatever the loadings' signs.  Without one they follow the signs of the total
+    loadings G: an item whose loading has the sign opposite to most of its factor's items (ties broken by the
+    sum of the loadings) is reversed.  ``direction`` (m): +1 where the factor points the keyed way (most keyed
+    items load positively), -1 where it points against its keys."""
+    signs = np.where(G < 0, -1.0, 1.0)
+    keys = np.array([-1.0 if declared is not None and x in declared else 1.0 for x in observed])[:, None]
+    vote, tie_break = (keys * signs * member).sum(axis=0), (keys * G * member).sum(axis=0)
+    direction = np.where(np.where(vote == 0, tie_break, vote) < 0, -1.0, 1.0)  # each factor's majority
+    K = (signs * direction if declared is None else keys) * member
+    return K, direction
 
 
 def cronbach_alpha(S: np.ndarray, keys: np.ndarray | None = None) -> float:
@@ -132,20 +157,12 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     direct = np.abs(L) > 0
     higher = np.abs(mats.B).sum(axis=0) > 0
     signs = np.where(G < 0, -1.0, 1.0)
+    K, direction = item_keys(G, member, observed, declared)
     if declared is None:
-        keys = signs
-        vote, tie_break = (signs * member).sum(axis=0), (G * member).sum(axis=0)
-    else:
-        keys = np.repeat(np.array([-1.0 if x in declared else 1.0 for x in observed])[:, None], m, axis=1)
-        vote, tie_break = (keys * signs * member).sum(axis=0), (keys * G * member).sum(axis=0)
-    direction = np.where(np.where(vote == 0, tie_break, vote) < 0, -1.0, 1.0)  # each factor's majority
-    if declared is None:
-        K = signs * direction * member
         against = np.zeros((p, m), dtype=bool)
     else:
-        K = keys * member
         # contradictions are reported once, for the factor the items load on directly
-        against = member & (keys * signs != direction) & (G != 0) & ~higher
+        against = member & (K * signs != direction) & (G != 0) & ~higher
     totals = np.einsum("ij,ij->j", K, sigma @ K)
     omega = np.einsum("ij,ij->j", K, G) ** 2 * np.diag(phi) / totals
     omega_total = 1.0 - np.einsum("ij,ij->j", K, theta @ K) / totals
@@ -178,10 +195,11 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         names = tuple(observed[i] for i in items)
         reversed_items = tuple(observed[i] for i in items if K[i, j] < 0)
         against_items = tuple(observed[i] for i in items if against[i, j])
+        turned = bool(direction[j] < 0)
         if higher[j]:
             results.append(FactorReliability(name, names, "higher-order", float(omega[j]), float(omega_total[j]),
                                              float(omega[j]), None, None, None, None, None, reversed_items, keying,
-                                             None, None, (), against_items))
+                                             None, None, (), against_items, points_against=turned))
             continue
         alpha_j = mean = sd = None
         item_total: tuple[float, ...] = ()
@@ -201,7 +219,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
             holds = bool(np.sqrt(ave[j]) > largest)
         results.append(FactorReliability(name, names, "first-order", float(omega[j]), float(omega_total[j]), None,
                                          float(cr[j]), float(ave[j]), alpha_j, largest, holds, reversed_items, keying,
-                                         mean, sd, item_total, against_items))
+                                         mean, sd, item_total, against_items, points_against=turned))
     htmt = []
     if S is not None:
         sd_items = np.sqrt(s_ii)
@@ -256,11 +274,31 @@ def _sum_score_mean(means: np.ndarray, keys: np.ndarray, names: list[str],
 
 
 def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") -> list[str]:
-    """Where the declared keying contradicts the signs of the estimated loadings."""
+    """Where the declared keying contradicts the signs of the estimated loadings, and factors that point
+    against their items (so that every correlation, mean difference and score of theirs reads the wrong way)."""
     out = []
     for r in factors:
+        if r.points_against:
+            out.append(_turned_warning(r, prefix))
+            continue
         if r.against_keying:
             names = ", ".join(f"'{x}'" for x in r.against_keying)
             out.append(f"{prefix}factor '{r.factor}': the loadings of {names} point the other way from what the "
                        f"'reversed' statement implies; check the keying and how the answers were coded")
     return out
+
+
+def _turned_warning(r: FactorReliability, prefix: str) -> str:
+    """The caution for a factor that points against its items (``points_against``)."""
+    with_keys = [x for x in r.items if x not in r.reversed]  # the items whose answers rise with the factor
+    if r.keying is Keying.DECLARED:
+        return (f"{prefix}factor '{r.factor}' points against its items: the items not declared reversed load "
+                f"negatively, so a higher '{r.factor}' means less of what they ask, and its correlations, mean "
+                f"differences and scores read the wrong way; fix the loading of an item not declared reversed at 1 "
+                f"as its marker (the automatic marker does so), or check the 'reversed' statement")
+    few = ", ".join(r.reversed)
+    one = len(r.reversed) == 1
+    return (f"{prefix}factor '{r.factor}' points the way of {few}, against most of its items ({', '.join(with_keys)} "
+            f"load negatively), so a higher '{r.factor}' means lower answers on most of its items; if {few} "
+            f"{'is' if one else 'are'} worded against the trait, declare {'it' if one else 'them'} with 'reversed "
+            f"{few} on LOWEST to HIGHEST', which orients the factor by its other items and keys the sums")

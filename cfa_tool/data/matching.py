@@ -60,3 +60,63 @@ def check_declared_ranges(spec: Spec, frame, data_source: str) -> None:
                     name.location,
                     spec.source_line(name.location),
                 )
+
+
+def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict | None = None) -> list[str]:
+    """Answers that look impossible without being refused, named first in every view (column, value, rows):
+
+    * answers of the other items of a factor that a 'reversed ... on MIN to MAX' statement keys, outside that
+      scale (the statement's items themselves are refused by :func:`check_declared_ranges`; their partners may
+      be answered on another scale, so they are named, not refused);
+    * values of an item that has value labels (SPSS, Stata) but not for that value, such as an 8 in an item
+      labelled 1 to 7."""
+    import numpy as np
+    import pandas as pd
+
+    from cfa_tool.data.moments import row_numbers
+
+    data_name = data_source.replace("\\", "/").rsplit("/", 1)[-1]
+    declared = spec.reverse_keyed
+    unkeyed = spec.method_factors | spec.exploratory_factors
+    scale_of: dict[str, tuple[float, float, str]] = {}  # item -> (min, max, factor keyed by the statement)
+    for factor in spec.factors:
+        if factor.name.text in unkeyed:
+            continue
+        names = [i.text for i in factor.indicators]
+        keyed = [declared[x] for x in names if x in declared]
+        if len(set(keyed)) == 1:  # one declared scale for the factor's reversed items
+            for x in names:
+                if x not in declared and x in frame.columns:
+                    scale_of.setdefault(x, (*keyed[0], factor.name.text))
+    rows = row_numbers(frame)
+    out = []
+
+    def listed(mask) -> str:
+        where = rows[mask]
+        shown = ", ".join(str(r) for r in where[:5])
+        return f"data row{'s' if len(where) > 1 else ''} {shown}" + (f" and {len(where) - 5} more" if len(where) > 5 else "")
+
+    for x in spec.observed_names:
+        if x not in frame.columns:
+            continue
+        try:
+            values = pd.to_numeric(frame[x], errors="coerce").to_numpy(dtype=float)
+        except (OverflowError, TypeError, ValueError):  # not numbers to compute with: the reading of the items says so
+            continue
+        answered = np.isfinite(values)
+        if x in scale_of:
+            low, high, factor = scale_of[x]
+            for v in sorted(set(values[answered & ((values < low) | (values > high))].tolist())):
+                out.append(f"{data_name}: '{x}' has the answer {v:g} ({listed(values == v)}), outside the scale "
+                           f"{low:g} to {high:g} that the 'reversed' statement declares for the items of {factor}; "
+                           f"check the answer, or give --missing-codes if it means 'no answer'")
+            continue
+        labels = (value_labels or {}).get(x)
+        if labels:
+            known = {float(k) for k in labels if isinstance(k, (int, float))}
+            if known:
+                for v in sorted(set(values[answered].tolist()) - known):
+                    out.append(f"{data_name}: '{x}' has the value {v:g} ({listed(values == v)}), which has no value "
+                               f"label, while its other values are labelled; check the answer, or give --missing-codes "
+                               f"if it means 'no answer'")
+    return out

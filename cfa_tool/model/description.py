@@ -21,8 +21,20 @@ from cfa_tool.model.parameters import ParameterTable
 class FactorScale:
     factor: str
     method: str  # "marker", "variance", "effects", "fixed by the model" (a fix the model file states)
-    marker: str | None = None  # the indicator whose loading is fixed at 1, for marker scaling
+    marker: str | None = None  # the indicator whose loading is fixed, for marker scaling
     below_higher_order: bool = False  # its variance parameter is a disturbance variance
+    marker_loading: float = 1.0  # the marker's fixed loading: -1 when every candidate is declared reversed
+    passed_over: tuple[str, ...] = ()  # declared-reversed items before the marker, not taken as marker
+    counted_reversed: tuple[str, ...] = ()  # effects coding: declared-reversed items, whose loadings count turned
+
+    def to_dict(self) -> dict:
+        out = {"factor": self.factor, "method": self.method, "marker": self.marker}
+        if self.marker is not None and (self.marker_loading != 1.0 or self.passed_over):
+            # only where a 'reversed' statement moved the marker, so that other models' results stay as they were
+            out.update(marker_loading=self.marker_loading, reversed_items_passed_over=list(self.passed_over))
+        if self.counted_reversed:
+            out["loadings_counted_reversed"] = list(self.counted_reversed)
+        return out
 
 
 @dataclass(frozen=True)
@@ -63,9 +75,9 @@ class ModelDescription:
             "factor_covariances_added": [list(p) for p in self.factor_covariances_added],
             "uncorrelated_factors": [list(p) for p in self.uncorrelated],
             "correlated_factors": self.correlated_factors,
-            "scales": [{"factor": s.factor, "method": s.method, "marker": s.marker} for s in self.scales],
-            "scales_by_group": [{"group": label, "scales": [{"factor": s.factor, "method": s.method, "marker": s.marker}
-                                                             for s in scales]} for label, scales in self.group_scales],
+            "scales": [s.to_dict() for s in self.scales],
+            "scales_by_group": [{"group": label, "scales": [s.to_dict() for s in scales]}
+                                for label, scales in self.group_scales],
             "equal": [[_ref_dict(r) for r in e] for e in self.equal],
             "fixed": [{**_ref_dict(r), "value": value} for r, value in self.fixed],
             "bounds": [{**_ref_dict(r), "lower": lo, "upper": hi} for r, lo, hi in self.bounds],
@@ -182,6 +194,7 @@ def _scales(spec: Spec, table: ParameterTable, group: int = 0) -> tuple[FactorSc
     """How each factor got its scale, read from one group's parameters."""
     out = []
     below = {i.text for f in spec.factors for i in f.indicators if i.text in set(spec.factor_names)}
+    keyed = table.reverse_keyed
     for name in spec.factor_names:
         endogenous = name in below
         own = [p for p in table.parameters if p.group == group and (
@@ -192,9 +205,15 @@ def _scales(spec: Spec, table: ParameterTable, group: int = 0) -> tuple[FactorSc
         elif any(p.kind == "factor_variance" for p in scale):
             out.append(FactorScale(name, "variance", None, endogenous))
         elif any(p.kind == "loading" and p.free for p in scale):
-            out.append(FactorScale(name, "effects", None, endogenous))
+            items = [p.variables[1] for p in own if p.kind == "loading"]
+            out.append(FactorScale(name, "effects", None, endogenous,
+                                   counted_reversed=tuple(x for x in items if (name, x) in keyed)))
         elif scale:
-            out.append(FactorScale(name, "marker", scale[0].variables[1], endogenous))
+            marker = scale[0].variables[1]
+            indicators = next(f.indicators for f in spec.factors if f.name.text == name)
+            before = [i.text for i in indicators[:[i.text for i in indicators].index(marker)]]
+            out.append(FactorScale(name, "marker", marker, endogenous, scale[0].offset,
+                                   tuple(x for x in before if (name, x) in keyed)))
         else:
             out.append(FactorScale(name, spec.scaling_of(name), None, endogenous))
     return tuple(out)

@@ -18,7 +18,10 @@ Each matrix entry is an affine function of the free-parameter vector theta:
 ``value = offset + sum(coef * theta[index])``.  Plain free parameters have one
 coefficient 1, equal parameters (within or across groups) share an index,
 fixed parameters have none, and effects coding writes one loading as
-``n - sum(other loadings)`` (Little, Slegers & Card 2006).
+``n - sum(other loadings)`` (Little, Slegers & Card 2006).  A 'reversed' statement orients factors:
+marker scaling passes over a declared-reversed first item (:func:`marker_of`), and effects coding
+averages the keyed loadings (a declared-reversed item's loading counted with its sign turned), so that
+each factor points the way of the items not declared reversed.
 """
 
 from __future__ import annotations
@@ -73,6 +76,8 @@ class ParameterTable:
     groups: tuple[str, ...] = ("",)
     mean_structure: bool = False
     multigroup: bool = False
+    # (factor, item) of the items a 'reversed' statement declares, for the factors they orient (see keyed_pairs)
+    reverse_keyed: frozenset[tuple[str, str]] = frozenset()
 
     @property
     def p(self) -> int:
@@ -272,6 +277,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         return multi and G > 1 and _entry_kind(entries[(0, *kind_key)]) in invariant and kind_key not in exceptions
 
     # ---- the automatic scale of each factor in each group
+    reverse_keyed = keyed_pairs(spec)
     effects: dict[tuple, list[tuple]] = {}  # the tied loading -> the other loadings of its factor
     for g in range(G):
         for factor in spec.factors:
@@ -285,7 +291,8 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                 candidates = [k for k in load_keys if k not in freed]
                 if not candidates:
                     raise _scale_error(spec, f, "every loading of it is freed, so no indicator can set its scale")
-                entries[candidates[0]].update(fixed=1.0, origin="scale")
+                marker, value = marker_of(candidates, {x for g_, x in reverse_keyed if g_ == f})
+                entries[marker].update(fixed=value, origin="scale")
             elif method == "variance":
                 if var_key in freed:
                     raise _scale_error(spec, f, "its variance is freed but 'scale ... by variance' fixes it")
@@ -429,9 +436,14 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     for key in order:
         e = entries[key]
         if key in effects:
+            # keyed effects coding: sum_i k_i l_i = n with k_i = -1 for a declared-reversed item, +1 otherwise, so
+            # l_last = k_last (n - sum_others k_i l_i); without a 'reversed' statement, the loadings average 1
             others = effects[key]
-            terms = _merge_terms([(index_of_root[find(k)], -1.0) for k in others if entries[k]["fixed"] is None])
-            offset = float(len(others) + 1) - sum(entries[k]["fixed"] for k in others if entries[k]["fixed"] is not None)
+            key_of = {k: -1.0 if k[2] in reverse_keyed else 1.0 for k in (key, *others)}
+            terms = _merge_terms([(index_of_root[find(k)], -key_of[key] * key_of[k]) for k in others
+                                  if entries[k]["fixed"] is None])
+            offset = key_of[key] * (float(len(others) + 1)
+                                    - sum(key_of[k] * entries[k]["fixed"] for k in others if entries[k]["fixed"] is not None))
         elif e["fixed"] is not None:
             terms, offset = (), float(e["fixed"])
         else:
@@ -452,7 +464,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     for array in (start, lower, upper):
         array.setflags(write=False)  # tables are shared between fits of the same model
     return ParameterTable(observed, latent, tuple(parameters), n_free, start, lower, upper, tuple(free_labels),
-                          group_labels, means, multi)
+                          group_labels, means, multi, reverse_keyed)
 
 
 def _entry_kind(entry: dict) -> str:
@@ -564,3 +576,27 @@ def _label(key: tuple, group_labels: tuple[str, ...] | None) -> str:
 def _scale_error(spec: Spec, factor: str, why: str) -> ModelError:
     loc = next((f.name.location for f in spec.factors if f.name.text == factor), None)
     return ModelError(f"factor '{factor}' has no scale: {why}", loc, spec.source_line(loc))
+
+
+def keyed_pairs(spec: Spec) -> frozenset[tuple[str, str]]:
+    """(factor, item) for each item a 'reversed' statement declares and each factor it orients: every factor
+    the item loads on, except method factors (a wording factor describes a way of answering, not a trait) and
+    the factors of exploratory blocks (their rotation orients them)."""
+    declared = spec.reverse_keyed
+    unkeyed = spec.method_factors | spec.exploratory_factors
+    return frozenset((f.name.text, i.text) for f in spec.factors if f.name.text not in unkeyed
+                     for i in f.indicators if i.text in declared)
+
+
+def marker_of(candidates: list[tuple], reverse_keyed: set[str]) -> tuple[tuple, float]:
+    """The loading that sets a factor's scale under marker scaling, and its fixed value.
+
+    ``candidates``: the factor's loadings that the model does not free, in the order of its indicators
+    (keys ending in (factor, indicator)).  The marker is the first of them whose indicator a 'reversed'
+    statement does not declare reverse-keyed, fixed at 1, so that the factor points the way of its trait
+    (the way its items not declared reversed point).  When every candidate is declared reversed, the first
+    is fixed at -1: the factor then runs against its items' raw answers, which the declaration says run
+    against the trait.  Without a 'reversed' statement the first candidate is fixed at 1, as the usual
+    marker-variable scaling does (Bollen 1989, ch. 7)."""
+    keyed = [k for k in candidates if k[-1][1] not in reverse_keyed]
+    return (keyed[0], 1.0) if keyed else (candidates[0], -1.0)

@@ -6,8 +6,9 @@ Harman 1976, ch. 8), signs included: reverse-keyed items start with a loading
 of the opposite sign.  The axis is turned so that the factor points the way its
 scale says: the marker's loading gets the sign of its fixed value (a reverse-keyed
 marker makes the other items' loadings negative), effects coding makes the
-loadings' sum positive, and a factor with a fixed variance follows the majority
-of its items.  Residual variances follow as ``s_ii (1 - l_i^2)``.  Factor
+keyed loadings' sum positive, and a factor with a fixed variance follows the majority
+of its items, counted with their keys (an item a 'reversed' statement declares counts
+against the factor).  Residual variances follow as ``s_ii (1 - l_i^2)``.  Factor
 correlations are least-squares estimates from the cross-correlations of the two
 blocks, phi_ab = l_a' R_ab l_b / (l_a'l_a l_b'l_b), which is the population value
 when R_ab = l_a phi_ab l_b' (a Spearman-style correction for attenuation), shrunk
@@ -39,6 +40,7 @@ class FactorBlock:
     position: np.ndarray
     value: np.ndarray
     marker: tuple[np.ndarray, np.ndarray]  # (row, position) of each factor's marker in the stack
+    keys: np.ndarray  # (k, n): -1 for an item a 'reversed' statement declares, +1 otherwise
     markers_only: bool  # every factor of the block is scaled by a marker (the usual case)
 
 
@@ -125,8 +127,10 @@ def start_plan(table: ParameterTable) -> StartPlan:
         fs = [f for f, ix in items.items() if len(ix) == n]
         ix = np.array([items[f] for f in fs])
         rule, position, value = (np.array(v) for v in zip(*(rules[f] for f in fs)))
+        keys = np.array([[-1.0 if (table.latent[f], table.observed[i]) in table.reverse_keyed else 1.0
+                          for i in items[f]] for f in fs]).reshape(ix.shape)
         blocks.append(FactorBlock(np.array(fs), ix, np.sqrt(n_factors[ix]), rule, position, value,
-                                  (np.arange(len(fs)), position), bool((rule == 1).all())))
+                                  (np.arange(len(fs)), position), keys, bool((rule == 1).all())))
     known = {f for f, ix in items.items() if ix}
     pending = [f for f in range(m) if lower[f]]
     higher = []
@@ -177,7 +181,7 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
         if b.markers_only:  # turn each axis so that the marker's loading has the sign of its fixed value
             l_std *= np.sign(l_std[b.marker] * b.value)[:, None]
         else:
-            l_std *= _orientation(l_std, l_std * sd[ix], b.rule, b.position, b.value)[:, None]
+            l_std *= _orientation(l_std, l_std * sd[ix], b.rule, b.position, b.value, b.keys)[:, None]
         # an item that loads on several factors shares its common variance among them
         std = l_std / b.share
         std_loading[b.factors[:, None], ix] = std
@@ -247,14 +251,19 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
 
 
 def _orientation(loadings: np.ndarray, raw: np.ndarray, rule: np.ndarray, position: np.ndarray,
-                 value: np.ndarray) -> np.ndarray:
+                 value: np.ndarray, keys: np.ndarray | None = None) -> np.ndarray:
     """+1 or -1 per row of a stack of one-factor solutions (k, n): the direction in which each factor
     points.  A marker (rule 1) keeps the sign of its fixed loading; effects coding (rule 2) needs a
     positive sum of the unstandardized loadings ``raw``; otherwise the majority of the items
-    (ties broken by the sum of the loadings) loads positively."""
+    (ties broken by the sum of the loadings) loads positively.  ``keys`` (k, n): -1 for an item a
+    'reversed' statement declares, whose loading then counts with its sign turned in the sum and the
+    majority, so that the factor points the way the statement says."""
     rows = np.arange(len(loadings))
+    marker_sign = np.sign(loadings[rows, position])
+    if keys is not None:
+        loadings, raw = loadings * keys, raw * keys
     majority = np.sign(np.sign(loadings).sum(axis=1) + 0.5 * np.sign(loadings.sum(axis=1)))
-    toward = np.where(rule == 1, np.sign(loadings[rows, position]) * np.sign(value),
+    toward = np.where(rule == 1, marker_sign * np.sign(value),
                       np.where(rule == 2, np.sign(raw.sum(axis=1)), majority))
     return np.where(toward == 0, 1.0, toward)
 

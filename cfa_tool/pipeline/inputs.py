@@ -13,7 +13,7 @@ import pandas as pd
 
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
-from cfa_tool.data.matching import check_columns, check_declared_ranges
+from cfa_tool.data.matching import answer_range_notes, check_columns, check_declared_ranges
 from cfa_tool.data.moments import SampleMoments, item_columns, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
@@ -155,6 +155,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         notes += filter_notes
     check_columns(spec, columns, loaded.source, loaded.sheet_hint())
     check_declared_ranges(spec, frame, loaded.source)
+    notes += answer_range_notes(spec, frame, loaded.source, loaded.value_labels)
     frame, labelled = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)
     if labelled:
         notes.append(f"{loaded.source}: the codes of {', '.join(repr(c) for c in labelled)} are read as their value "

@@ -153,7 +153,8 @@ def _scales_in_words(chosen, every) -> str:
         subject = f"the scales of {whose} were" if len(scales) > 1 and whose != "each factor" else f"the scale of {whose} was"
         if method == "marker":
             markers = _list([f"{s.marker} for {s.factor}" for s in scales]) if len(scales) > 1 else scales[0].marker
-            parts.append(f"{subject} set by fixing the loading of one indicator to 1 ({markers})")
+            parts.append(f"{subject} set by fixing the loading of one indicator to 1 ({markers})"
+                         + _keyed_markers(scales))
         elif method == "variance":
             which = "disturbance variance" if disturbance else "variance"
             whose = _list(names) if disturbance else whose
@@ -161,12 +162,33 @@ def _scales_in_words(chosen, every) -> str:
             parts.append(f"{subject} set by fixing {'their' if len(names) > 1 and whose != 'each factor' else 'its'} "
                          f"{which}{'s' if len(names) > 1 and whose != 'each factor' else ''} to 1")
         elif method == "effects":
+            turned = [x for s in scales for x in s.counted_reversed]
             parts.append(f"{subject} set by effects coding, the loadings of each factor constrained to average 1 "
-                         f"(Little, Slegers & Card, 2006)")
+                         f"(Little, Slegers & Card, 2006)" + (
+                             f", the loadings of {_list(turned)}, declared reverse-keyed, counted with their signs "
+                             f"turned" if turned else ""))
         else:
             parts.append(f"{subject} set by parameters the model fixes")
     sentence = "; ".join(parts)
     return sentence[0].upper() + sentence[1:] + "."
+
+
+def _keyed_markers(scales) -> str:
+    """How a 'reversed' statement chose markers: a declared-reversed first item is passed over, so that the
+    factor points the way of its trait; a factor whose every item is declared reversed has its marker fixed
+    at -1.  Empty when the statement changed no marker."""
+    passed = [s for s in scales if s.passed_over]
+    against = [s for s in scales if s.marker_loading < 0]
+    words = []
+    if passed:
+        items = _list([x for s in passed for x in s.passed_over])
+        several = sum(len(s.passed_over) for s in passed) > 1
+        words.append(f"{items}, declared reverse-keyed, {'were' if several else 'was'} not taken as "
+                     f"marker{'s' if several else ''}, so that {'their factors point the way of their traits' if several else 'its factor points the way of its trait'}")
+    if against:
+        words.append(f"every item of {_list([s.factor for s in against])} is declared reverse-keyed, so the "
+                     f"loading of {_list([s.marker for s in against])} was fixed to -1 instead")
+    return f"; {'; '.join(words)}" if words else ""
 
 
 def _block_sentences(result, d) -> str:

@@ -6,9 +6,9 @@ from __future__ import annotations
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.remedies import Remedy
 from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
-from cfa_tool.reporting.numbers import unit
+from cfa_tool.reporting.numbers import num, unit
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
-from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
+from cfa_tool.scoring.methods import DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, LINEAR_METHODS, ScoreMethod
 
 SCORES_CAUTION = (
     "Factor scores are estimates, not the factors themselves: with the same data, other equally valid scores exist. "
@@ -39,7 +39,9 @@ def header_lines(result) -> list[str]:
             f"Scores ({methods}) of {result.rows} rows, one per row of the data in the file's order; columns: "
             f"{first}one per factor" + ("" if not result.standard_errors else
                                         " with its posterior standard deviation" if ScoreMethod.EXPECTED_A_POSTERIORI
-                                        in result.methods else " with its standard error")] + _design_line(fit)
+                                        in result.methods else " with its standard error")
+            + f"{' and method' if len(result.methods) > 1 else ''}, then per factor the number of its items the row "
+              f"answered"] + _design_line(fit)
 
 
 def _design_line(fit) -> list[str]:
@@ -86,6 +88,52 @@ def quality_table(result, k: int) -> ReportTable:
     title = "Quality of the scores" + _where(q) + ("" if ordinal else ": determinacy, and reliability by method")
     return _table(f"score_quality_{k}", title, cols, rows, note,
                   flagged=tuple(i for i, low in enumerate(q.low_determinacy) if low))
+
+
+def precision_table(result, k: int) -> ReportTable | None:
+    """How precise one person's score is, for the first method written (continuous items; module docstring of
+    scoring.quality): the standard error, a 95% band and the smallest difference between two people that exceeds
+    chance, in the factor's units and in its standard deviations."""
+    q = result.quality[k]
+    if not hasattr(q, "methods") or not q.factor_sd:
+        return None
+    method = result.methods[0]
+    rows, values = [], []
+    for p in q.precision(method):
+        rows.append([p.factor, num(p.standard_error, 2), f"±{num(p.band, 2)}", f"±{num(p.band_in_sd, 2)}",
+                     num(p.smallest_difference, 2), num(p.smallest_difference_in_sd, 2)])
+        values.append([p.factor, p.standard_error, p.band, p.band_in_sd, p.smallest_difference,
+                       p.smallest_difference_in_sd])
+    if not rows:
+        return None
+    cols = [("Factor", "l"), ("SE", "r"), ("95% band", "r"), ("Band, SDs", "r"), ("Real difference", "r"),
+            ("Difference, SDs", "r")]
+    note = (f"For {METHOD_LABELS[method]} scores with every item answered (each row's own standard error is "
+            f"the _se column of the file). SE: the typical distance of a score from the person's factor value; 95% band: "
+            f"±1.96 SE about a score (normal approximation); real difference: the smallest difference between two "
+            f"people's scores that exceeds chance at the 5% level, 1.96 × √2 × SE (Gulliksen 1950; recalled from "
+            f"memory, common practice). SDs: divided by the factor's standard deviation.")
+    return _table(f"score_precision_{k}", "How precise is one person's score?" + _where(q), cols, rows, note,
+                  values=([c for c, _ in cols], values))
+
+
+def precision_cautions(result) -> list[str]:
+    """Factors whose scores' reliability is below what decisions about individuals usually need."""
+    lines = []
+    for q in result.quality:
+        if hasattr(q, "methods"):
+            words = f"{METHOD_LABELS[result.methods[0]]} scores"
+            found = [(p.factor, p.reliability, p.band_in_sd) for p in q.precision(result.methods[0])]
+        else:
+            words = f"{METHOD_LABELS[ScoreMethod.EXPECTED_A_POSTERIORI]} scores"
+            found = [(f, rel, None) for f, rel in zip(q.factors, q.reliability)]
+        low = [f"{factor} {unit(rel, 2)}" + (f" (95% band about ±{num(band, 2)} SD of the factor)" if band is not None
+                                             else "") for factor, rel, band in found if rel < INDIVIDUAL_DECISIONS]
+        if low:
+            lines.append(f"The reliability of the {words}{_where(q)} is below the {unit(INDIVIDUAL_DECISIONS, 2)} that "
+                         f"decisions about individuals usually need (Nunnally & Bernstein 1994; common practice): "
+                         f"{', '.join(low)}.")
+    return lines
 
 
 def correlation_table(result, k: int) -> ReportTable | None:
@@ -153,7 +201,8 @@ def unscored_table(result) -> ReportTable | None:
 def score_tables(result) -> list[ReportTable]:
     out = []
     for k in range(len(result.quality)):
-        out += [t for t in (quality_table(result, k), correlation_table(result, k), sum_table(result, k)) if t is not None]
+        out += [t for t in (quality_table(result, k), precision_table(result, k), correlation_table(result, k),
+                            sum_table(result, k)) if t is not None]
     extra = unscored_table(result)
     if extra is not None:
         out.append(extra)
@@ -164,15 +213,16 @@ def score_tables(result) -> list[ReportTable]:
 ABOUT_THE_FIT = "About the fit (not the scored data): "
 
 
-def notes(result) -> list[str]:
-    """The fit's notes (said to be about the fit when other data are scored), then the scores' own."""
+def warnings(result) -> list[str]:
+    """What the report says before its tables: the fit's warnings (said to be about the fit when other data are
+    scored), then the cautions about the rows' scores (rows scored without an answer to a factor's items)."""
     # the fit's note on reading the fit indices of ordinal items: the scores' report shows none
-    warnings = [w for w in result.fit.warnings if w != ORDINAL_NOTE]
-    if not result.scored_source:
-        return warnings + list(result.notes)
-    # the fit's advice named its own options; scoring other data takes none of them
-    option = f" ({Remedy.COMPLETE_ROWS.option})"
-    return [ABOUT_THE_FIT + w.replace(option, "") for w in warnings] + list(result.notes)
+    fitted = [w for w in result.fit.warnings if w != ORDINAL_NOTE]
+    if result.scored_source:
+        # the fit's advice named its own options; scoring other data takes none of them
+        option = f" ({Remedy.COMPLETE_ROWS.option})"
+        fitted = [ABOUT_THE_FIT + w.replace(option, "") for w in fitted]
+    return fitted + list(result.warnings)
 
 
 def scores_report(result):
@@ -182,5 +232,5 @@ def scores_report(result):
 
     return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", T.problem_notice(result.fit),
                   tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
-                  tuple(notes(result)), (SCORES_CAUTION, HIGH_STAKES_NOTE),
-                  problem_table=T.problem_table(result.fit))
+                  tuple(result.notes), (SCORES_CAUTION, *precision_cautions(result), HIGH_STAKES_NOTE),
+                  problem_table=T.problem_table(result.fit), warnings=tuple(warnings(result)))

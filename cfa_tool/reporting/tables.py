@@ -268,9 +268,22 @@ def _scale_phrase(result, factor: str) -> str:
     if scale is None:
         return ""
     if scale.method == "marker" and scale.marker:
-        return f"scale: loading of {scale.marker} fixed at 1"
+        return f"scale: loading of {scale.marker} fixed at {scale.marker_loading:g}{_marker_reason(scale)}"
+    if scale.method == "effects" and scale.counted_reversed:
+        return f"scale: loadings average 1, with {', '.join(scale.counted_reversed)} (declared reversed) turned"
     return {"variance": "scale: variance fixed at 1", "effects": "scale: loadings average 1",
             "fixed by the model": "scale: fixed by the model"}.get(scale.method, f"scale: {scale.method}")
+
+
+def _marker_reason(scale) -> str:
+    """Why a marker is not the factor's first item or is fixed at -1 (a 'reversed' statement), in a clause
+    that follows the marker's fixed loading; empty otherwise."""
+    if scale.marker_loading < 0:
+        return f", as every item of {scale.factor} is declared reversed"
+    if scale.passed_over:
+        listed = ", ".join(scale.passed_over)
+        return f", not {listed}, declared reversed"
+    return ""
 
 
 def _interval(low: float, high: float) -> str:
@@ -752,24 +765,33 @@ def category_table(result, group: int = 0) -> ReportTable | None:
     d = result.groups[group].data
     if not d.categories or not any(d.categories):
         return None
-    width = max(len(c) for c in d.categories)
-    rows, values = [], []
+    codes = sorted({v for cats in d.categories for v, _ in cats})  # the columns: the answer codes themselves
+    rows, values, single, flagged = [], [], [], []
     for name, cats in zip(d.variables, d.categories):
         if not cats:
             continue
         total = sum(c for _, c in cats) or 1
-        rows.append([name] + [f"{v:g}: {c} ({100 * c / total:.0f}%)" for v, c in cats] + [""] * (width - len(cats)))
-        values.append([name] + [c for _, c in cats] + [None] * (width - len(cats)))
+        count = dict(cats)
+        if 1 in count.values():  # a category of one answer: the item's row is flagged
+            flagged.append(len(rows))
+            single += [f"{name} {v:g}" for v, c in cats if c == 1]
+        rows.append([name] + [f"{count[v]} ({100 * count[v] / total:.0f}%)" if v in count else "" for v in codes])
+        values.append([name] + [count.get(v) for v in codes])
     label = result.groups[group].label
     where = f" in group {label}" if label is not None else ""
     weights = _weights_column(result)
+    lonely = ("" if not single else
+              f" Answered by one row only: {', '.join(single)}; a threshold next to such a category rests on that one "
+              f"answer and is unstable (merge the category with its neighbour, or check the answer).")
     return _table(f"categories_{group}", f"Answers per category{where} (rows analysed"
                   + ("" if weights is None else ", each counted once: unweighted") + ")",
-                  [("Item", "l")] + [(str(k + 1), "r") for k in range(width)], rows,
-                  "Each cell: the answer value, the rows giving it and their share. Categories nobody chose do not "
-                  "appear (their threshold cannot be estimated)." + ("" if weights is None else
-                  f" Rows are counted once each, unweighted; the thresholds use the shares weighted by {weights}."),
-                  values=(["Item"] + [f"Category {k + 1} rows" for k in range(width)], values))
+                  [("Item", "l")] + [(f"{v:g}", "r") for v in codes], rows,
+                  "Each column is an answer code; each cell: the rows giving it and their share. An empty cell: a "
+                  "code the item's rows never gave (no threshold is estimated for it)." + lonely + (
+                      "" if weights is None else
+                      f" Rows are counted once each, unweighted; the thresholds use the shares weighted by {weights}."),
+                  flagged=tuple(flagged),
+                  values=(["Item"] + [f"Answer {v:g} rows" for v in codes], values))
 
 
 def label_tables(result) -> list[ReportTable]:

@@ -37,3 +37,6 @@ class Unscored(Enum):
 #: determinacy below this is a caution against using the scores for decisions about individuals
 #: (common practice, no single source; that Gorsuch 1983 and Grice 2001 discuss .80 and .90 is recalled from memory)
 DETERMINACY_CAUTION = 0.80
+#: reliability below this is usually too low for decisions about individuals (Nunnally & Bernstein 1994 ask
+#: for .90 at least there; common practice, recalled from memory)
+INDIVIDUAL_DECISIONS = 0.90

@@ -14,6 +14,12 @@ For complete answers and a linear score s = alpha + W'(x - mu) of factors F (wei
 * the correlations among each method's scores, beside the factors' correlations (Grice 2001 compares them:
   regression scores overstate them, Bartlett scores too as a rule, correlation-preserving scores keep them).
 
+Precision of one person's score (:func:`precision`), in the factor's units and in its standard deviations: the
+standard error SE, the root mean squared error of the score about its factor with every item answered; a 95%
+band of +/- 1.96 SE about the score (a normal approximation); and the smallest difference between two people's
+scores that exceeds chance at the 5% level, 1.96 sqrt(2) SE, the standard error of the difference of two
+independent errors (Gulliksen 1950; recalled from memory, common practice).
+
 Sum scores of ordinal items: the same keyed sums of the answers' codes, with the reliability of Green & Yang (2009)
 from the thresholds, loadings and factor covariances (:mod:`cfa_tool.assessment.ordinal_reliability`).
 
@@ -26,11 +32,13 @@ A row that misses one of the sum's items gets no sum (a sum over fewer items is 
 
 from __future__ import annotations
 
+from collections.abc import Collection
 from dataclasses import dataclass
 
 import numpy as np
 
 from cfa_tool.assessment.ordinal_reliability import observed_sum_omega
+from cfa_tool.assessment.reliability import item_keys
 from cfa_tool.numerics.plain import clean
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
 from cfa_tool.scoring.model import OrdinalScoringModel, ScoringModel, checked_covariance
@@ -76,6 +84,37 @@ class SumScore:
                       "omega": self.omega, "validity": self.validity})
 
 
+#: the normal quantile of a two-sided 95% band
+Z95 = 1.959963984540054
+
+
+@dataclass(frozen=True)
+class Precision:
+    """How precise one person's score of one factor is (module docstring), for one method."""
+
+    factor: str
+    method: ScoreMethod
+    factor_sd: float  # the factor's standard deviation
+    reliability: float  # of the method's scores
+    standard_error: float  # root mean squared error of the score about its factor
+    band: float  # half-width of the 95% band, Z95 * SE
+    smallest_difference: float  # Z95 * sqrt(2) * SE
+
+    @property
+    def band_in_sd(self) -> float:
+        return self.band / self.factor_sd
+
+    @property
+    def smallest_difference_in_sd(self) -> float:
+        return self.smallest_difference / self.factor_sd
+
+    def to_dict(self) -> dict:
+        return clean({"factor": self.factor, "method": self.method.value, "factor_sd": self.factor_sd,
+                      "reliability": self.reliability, "standard_error": self.standard_error, "band_95": self.band,
+                      "band_95_in_sd": self.band_in_sd, "smallest_difference": self.smallest_difference,
+                      "smallest_difference_in_sd": self.smallest_difference_in_sd})
+
+
 @dataclass(frozen=True)
 class ScoreQuality:
     """Quality of each method's scores for one group (population values under the fitted model)."""
@@ -87,15 +126,24 @@ class ScoreQuality:
     factor_correlations: np.ndarray  # (m, m)
     methods: tuple[MethodQuality, ...]
     sums: tuple[SumScore, ...]
+    factor_sd: tuple[float, ...] = ()  # sqrt(Phi_kk)
 
     def method(self, method: ScoreMethod) -> MethodQuality:
         return next(q for q in self.methods if q.method is method)
+
+    def precision(self, method: ScoreMethod) -> tuple[Precision, ...]:
+        """Each scored factor's :class:`Precision` for ``method`` (module docstring)."""
+        q = self.method(method)
+        return tuple(Precision(f, method, sd, rel, se, Z95 * se, Z95 * np.sqrt(2.0) * se)
+                     for f, sd, rel, se in zip(self.factors, self.factor_sd, q.reliability, q.root_mean_squared_error)
+                     if np.isfinite(se) and np.isfinite(rel))
 
     def to_dict(self) -> dict:
         return clean({"group": self.group, "factors": list(self.factors), "determinacy": list(self.determinacy),
                       "low_determinacy": list(self.low_determinacy), "determinacy_caution": DETERMINACY_CAUTION,
                       "factor_correlations": self.factor_correlations.tolist(),
-                      "methods": [q.to_dict() for q in self.methods], "sums": [s.to_dict() for s in self.sums]})
+                      "methods": [q.to_dict() for q in self.methods], "sums": [s.to_dict() for s in self.sums],
+                      "precision": [p.to_dict() for q in self.methods for p in self.precision(q.method)]})
 
 
 def determinacy(model: ScoringModel) -> np.ndarray:
@@ -130,18 +178,18 @@ def method_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEA
     return tuple(out)
 
 
-def sum_keys(model: ScoringModel) -> np.ndarray:
+def sum_keys(model: ScoringModel, declared: Collection[str] | None = None) -> np.ndarray:
     """(p, m) keys of the sum scores: +1 or -1 for the items that measure each factor (directly or through
-    the factors below it; the sign of the total loading), 0 for the others."""
+    the factors below it), 0 for the others, by the rule the fit's reliability uses
+    (:func:`cfa_tool.assessment.reliability.item_keys`): the declared keys when the model has a 'reversed'
+    statement (``declared``: the items it names), the signs of the loadings otherwise."""
     G, L = model.total_loadings, model.loadings
-    reach = model.reach
-    sign = np.where(np.sign(G) != 0, np.sign(G), np.sign(L))
-    return np.where(reach, sign, 0.0)
+    return item_keys(np.where(G != 0, G, L), model.reach, model.items, declared)[0]
 
 
-def sum_scores(model: ScoringModel, rows: np.ndarray) -> np.ndarray:
-    """(n, m) keyed unit-weighted sums; NaN where a row misses one of the factor's items."""
-    keys = sum_keys(model)
+def sum_scores(model: ScoringModel, rows: np.ndarray, declared: Collection[str] | None = None) -> np.ndarray:
+    """(n, m) keyed unit-weighted sums (keys: :func:`sum_keys`); NaN where a row misses one of the factor's items."""
+    keys = sum_keys(model, declared)
     rows = np.asarray(rows, dtype=float)
     filled = np.where(np.isnan(rows), 0.0, rows)
     sums = filled @ keys
@@ -149,10 +197,10 @@ def sum_scores(model: ScoringModel, rows: np.ndarray) -> np.ndarray:
     return np.where(incomplete, np.nan, sums)
 
 
-def sum_quality(model: ScoringModel) -> tuple[SumScore, ...]:
-    """Omega (McDonald 1999) and validity of each factor's keyed sum."""
+def sum_quality(model: ScoringModel, declared: Collection[str] | None = None) -> tuple[SumScore, ...]:
+    """Omega (McDonald 1999) and validity of each factor's keyed sum (keys: :func:`sum_keys`)."""
     sigma = checked_covariance(model)
-    keys = sum_keys(model)
+    keys = sum_keys(model, declared)
     G, phi, C = model.total_loadings, model.factor_covariance, model.item_factor_covariance
     out = []
     for f, name in enumerate(model.factors):
@@ -168,13 +216,13 @@ def sum_quality(model: ScoringModel) -> tuple[SumScore, ...]:
     return tuple(out)
 
 
-def ordinal_sum_quality(model: OrdinalScoringModel) -> tuple[SumScore, ...]:
+def ordinal_sum_quality(model: OrdinalScoringModel, declared: Collection[str] | None = None) -> tuple[SumScore, ...]:
     """Each factor's keyed sum of ordinal answers with its reliability (Green & Yang 2009); sums that would take in
     a continuous item beside the ordinal ones are left out (their codes are not answers to a threshold model).
     Validity (the sum's correlation with its factor) is not computed for them (NaN)."""
     base = model.base
     sigma = checked_covariance(base)
-    keys = sum_keys(base)
+    keys = sum_keys(base, declared)
     G, phi = base.total_loadings, base.factor_covariance
     mean = base.intercepts + G @ base.factor_means
     out = []
@@ -190,9 +238,12 @@ def ordinal_sum_quality(model: OrdinalScoringModel) -> tuple[SumScore, ...]:
     return tuple(out)
 
 
-def score_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEAR_METHODS) -> ScoreQuality:
-    """Everything :class:`ScoreQuality` holds, for one group."""
+def score_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEAR_METHODS,
+                  declared: Collection[str] | None = None) -> ScoreQuality:
+    """Everything :class:`ScoreQuality` holds, for one group (``declared``: the items of the model's 'reversed'
+    statement, None without one)."""
     rho = determinacy(model)
     return ScoreQuality(model.group, model.factors, tuple(float(v) for v in rho),
                         tuple(bool(v < DETERMINACY_CAUTION) for v in rho), _correlation(model.factor_covariance),
-                        method_quality(model, methods), sum_quality(model))
+                        method_quality(model, methods), sum_quality(model, declared),
+                        tuple(float(v) for v in np.sqrt(np.clip(np.diag(model.factor_covariance), 0.0, None))))

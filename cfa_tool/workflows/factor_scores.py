@@ -71,9 +71,10 @@ def method_option(methods) -> tuple[ScoreMethod, ...]:
 
 
 def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, errors: dict,
-                   with_errors: bool) -> tuple[str | None, dict[str, object]]:
+                   with_errors: bool, answered: np.ndarray) -> tuple[str | None, dict[str, object]]:
     """(name of the id column or None, the output's columns): the ids first, then each method's score of each
-    factor, with its standard error when asked for."""
+    factor, with its standard error when asked for, then the number of each factor's items each row answered
+    (``answered``, see :func:`_items_answered`): 0 marks a score that rests on the other factors' items alone."""
     columns: dict[str, object] = {}
     id_name = None
     if ids is not None:
@@ -88,7 +89,26 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
             columns[column_name(name, meth)] = values[meth][:, f]
             if with_errors:
                 columns[column_name(name, meth, "se")] = errors[meth][:, f]
+    for f, name in enumerate(factors):
+        if id_name == answered_column(name):
+            raise OptionError(f"the id column '{printable(id_name)}' has the name of a column the output holds; "
+                              f"rename that column in the data, or name the rows by another column")
+        columns[answered_column(name)] = pd.array([None if np.isnan(v) else int(v) for v in answered[:, f]],
+                                                  dtype="Int64")
     return id_name, columns
+
+
+def answered_column(factor: str) -> str:
+    """Output column of the number of a factor's items a row answered: e.g. 'visual_items_answered'."""
+    return f"{factor}_items_answered"
+
+
+def _items_answered(model, rows: np.ndarray, at: np.ndarray, n: int) -> np.ndarray:
+    """(n, m): how many of each factor's items (directly or through the factors below it) each row answered, at
+    the rows' places ``at`` among the ``n`` rows read; NaN for rows not scored (left out by a filter)."""
+    out = np.full((n, model.m), np.nan)
+    out[at] = (~np.isnan(rows)).astype(float) @ model.reach.astype(float)
+    return out
 
 
 def column_name(factor: str, method: ScoreMethod, what: str = "") -> str:
@@ -144,6 +164,9 @@ class ScoreResult(Presentable):
     standard_errors: bool
     notes: tuple[str, ...] = ()
     scored_source: str | None = None  # the data scored, when they are not the data the model was fitted to
+    # cautions about the rows' scores, shown before the tables: rows whose score of a factor rests on the other
+    # factors' items alone (they answered none of its items)
+    warnings: tuple[str, ...] = ()
 
     @property
     def rows(self) -> int:
@@ -173,6 +196,7 @@ class ScoreResult(Presentable):
             "quality": [q.to_dict() for q in self.quality],
             "determinacy_caution": DETERMINACY_CAUTION,
             "low_determinacy": list(self.low_determinacy),
+            "warnings": list(self.warnings),
             "notes": list(self.notes),
             "fit": self.fit.to_dict(),
         }
@@ -291,13 +315,15 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
             for meth in chosen:
                 counts[(RowLeftOut.NO_GROUP.value, meth.value)] = np.full(m, no_group)
 
+    answered = _items_answered(models[0].base if ordinal_items else models[0], rows,
+                               position.loc[kept].to_numpy(), len(read_index))
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors,
-                                      bool(standard_errors or ordinal_items))
+                                      bool(standard_errors or ordinal_items), answered)
     table = pd.DataFrame(columns)
     if id_name is not None and id_name in list(table.columns)[1:]:
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
-    quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group) \
-        if ordinal_items else _linear_quality(models)
+    quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
+                               spec) if ordinal_items else _linear_quality(models, spec)
     extra = duplicate_note(ids, "id column" if id_column is not None else "row names")
     if ids is not None and id_column is None:
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
@@ -306,11 +332,11 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
     if unweighted:
         which = "The row of weight 0 is" if unweighted == 1 else f"The {unweighted} rows of weight 0 are"
-        own.insert(0, f"{which} scored all the same: a row's score follows from its own answers and the fitted "
-                      f"parameters, whatever its weight")
+        extra.append(f"{which} scored all the same: a row's score follows from its own answers and the fitted "
+                     f"parameters, whatever its weight")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
-                       bool(standard_errors or ordinal_items), tuple(extra + own))
+                       bool(standard_errors or ordinal_items), tuple(extra), warnings=tuple(own))
 
 
 def models_of_fit(result: FitResult) -> tuple[list, list]:
@@ -436,7 +462,9 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                 counts[(reason, meth.value)] = np.full(m, number)
     factors = base.factors
     with_errors = bool(standard_errors or ordinal)  # a posterior mean always comes with its posterior SD
-    id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors)
+    answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
+    id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors, answered)
+    warnings = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names")
     if group is not None:
         from cfa_tool.data.labels import label_notes
@@ -444,17 +472,17 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes += label_notes(frame, group)
     if ordinal:
         quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, frame.index,
-                                   group_of_row, group)
+                                   group_of_row, group, spec)
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source} (loadings, thresholds and factor covariances); the quality figures "
                         f"(marginal reliability) are those of the scores of {source}.")
     else:
-        quality = _linear_quality(models)
+        quality = _linear_quality(models, spec)
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     return ScoreResult(result, chosen, tuple(factors), id_name, pd.DataFrame(columns), tuple(quality),
-                       unscored, with_errors, tuple(notes), source)
+                       unscored, with_errors, tuple(notes), source, tuple(warnings))
 
 
 def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str) -> None:
@@ -744,13 +772,20 @@ def _ordinal_models(spec, frame, source, ordinal_items, group, reference_group, 
     return list(ordinal_score_inputs(_Fitted(table, StructuredModel(table), result.theta), groups)), list(labels)
 
 
-def _linear_quality(models) -> list[ScoreQuality]:
+def _linear_quality(models, spec) -> list[ScoreQuality]:
+    from cfa_tool.scoring.methods import LINEAR_METHODS
     from cfa_tool.scoring.quality import score_quality
 
-    return [score_quality(m) for m in models]
+    return [score_quality(m, LINEAR_METHODS, _declared(spec)) for m in models]
 
 
-def _ordinal_quality(models, labels, values, errors, position, kept, group_of_row, group) -> list[OrdinalQuality]:
+def _declared(spec):
+    """The items of the model's 'reversed' statement, None without one: the keys of the sums (one rule with the
+    fit's reliability, scoring.quality.sum_keys)."""
+    return frozenset(spec.reverse_keyed) if spec.reversed else None
+
+
+def _ordinal_quality(models, labels, values, errors, position, kept, group_of_row, group, spec) -> list[OrdinalQuality]:
     out = []
     for model_g, label in zip(models, labels):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(kept))
@@ -767,7 +802,7 @@ def _ordinal_quality(models, labels, values, errors, position, kept, group_of_ro
         phi = model_g.base.factor_covariance
         sd = np.sqrt(np.diag(phi))
         out.append(OrdinalQuality(label, model_g.base.factors, tuple(reliability), phi / np.outer(sd, sd), scores,
-                                  ordinal_sum_quality(model_g)))
+                                  ordinal_sum_quality(model_g, _declared(spec))))
     return out
 
 
@@ -780,5 +815,7 @@ def _without_own_answers_note(models, labels, rows, group_of_row, group, factors
         part = rows[sel]
         answered = ~np.isnan(part).all(axis=1)
         total += without_own_answers(model_g.base if ordinal else model_g, part[answered]).sum(axis=0)
-    return [f"{int(n)} rows answered none of the items of {name}; their score of {name} rests on the other factors' "
-            f"items alone (through the factors' correlations)" for name, n in zip(factors, total) if n]
+    return [f"{int(n)} {'row' if n == 1 else 'rows'} answered none of the items of {name}; {'its' if n == 1 else 'their'} "
+            f"score of {name} rests on the other factors' items alone (through the factors' correlations), and the "
+            f"column {answered_column(name)} marks {'it' if n == 1 else 'them'} with 0"
+            for name, n in zip(factors, total) if n]

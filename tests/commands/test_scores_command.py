@@ -93,7 +93,12 @@ def test_rows_with_gaps_are_scored_from_their_answers_and_empty_rows_are_kept_an
     scores = written[[f"{f}_regression" for f in FACTORS]].to_numpy()
     assert np.isnan(scores[5]).all()
     assert [u for u in result["unscored"] if u["reason"] == "no answers on the model's items"][0]["rows"]["visual"] == 1
-    assert any("answered none of the items of visual" in n for n in result["notes"])
+    # said before the tables (a warning), and marked in the output: row 7 answered no visual item, so its
+    # visual_items_answered is 0; counted by hand from the gaps made above
+    assert any("answered none of the items of visual" in n for n in result["warnings"])
+    answered = (~np.isnan(values)).reshape(len(values), 3, 3).sum(axis=2)  # x1-x3, x4-x6, x7-x9
+    np.testing.assert_array_equal(written[[f"{f}_items_answered" for f in FACTORS]].to_numpy(), answered)
+    assert answered[7, 0] == 0
     L, phi, theta, nu = _estimates(result)  # full-information fit: intercepts estimated, factor means 0
     sigma = L @ phi @ L.T + theta
     checked = 0
@@ -169,7 +174,7 @@ def test_ordinal_items_get_posterior_means_and_standard_deviations(tmp_path, cap
     code, text, err = _run(["scores", model, "--data", data, "--output", out, "--ordinal", "all"], capsys)
     assert code == 0, err
     written = pd.read_csv(out)
-    assert list(written.columns) == ["f_posterior_mean", "f_posterior_sd"]
+    assert list(written.columns) == ["f_posterior_mean", "f_posterior_sd", "f_items_answered"]
     s = written["f_posterior_mean"]
     assert abs(s.mean()) < 4 * s.std() / np.sqrt(n)  # E[EAP] = the factor mean, 0 here
     assert (written["f_posterior_sd"] > 0).all()
@@ -186,7 +191,8 @@ def test_python_entry_point_with_groups(hs_data):
 
     result = cfa_tool.scores(THREE_FACTORS, hs_data, group="school", methods="bartlett", id_column="id")
     assert dataclasses.is_dataclass(result) and result.__dataclass_params__.frozen
-    assert list(result.table.columns) == ["id"] + [f"{f}_bartlett" for f in FACTORS]
+    assert list(result.table.columns) == (["id"] + [f"{f}_bartlett" for f in FACTORS]
+                                          + [f"{f}_items_answered" for f in FACTORS])
     assert len(result.table) == len(hs_data) and not result.table.isna().any().any()
     assert [q.group for q in result.quality] == ["Grant-White", "Pasteur"]  # one quality record per group
     assert result.to_dict()["methods"] == ["bartlett"] and result.to_dict()["fit"]["group_column"] == "school"

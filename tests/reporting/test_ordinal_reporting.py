@@ -69,7 +69,10 @@ def test_category_frequencies_of_ordinal_items(ordinal_fit):
     table = T.category_table(result)
     counts = data["y3"].value_counts().sort_index()
     row = next(r for r in table.rows if r[0] == "y3")
-    assert list(row[1:]) == [f"{v:g}: {c} ({100 * c / len(data):.0f}%)" for v, c in counts.items()]
+    # the columns are the answer codes themselves (new-user trial U3: positions put one item's 0 under another's 1)
+    codes = [f"{v:g}" for v in counts.index]
+    assert list(table.columns[1:]) == codes
+    assert list(row[1:]) == [f"{c} ({100 * c / len(data):.0f}%)" for c in counts]
     out = result.to_dict()["data"]["category_counts"]["y3"]
     assert [(c["value"], c["rows"]) for c in out] == [(float(v), int(c)) for v, c in counts.items()]
 
@@ -88,7 +91,7 @@ def test_weighted_descriptives_say_what_is_weighted():
     assert result.groups[0].data.means[0] == pytest.approx(np.average(answers[:, 0], weights=data["w"]), rel=1e-12)
     assert "Mean and SD weighted by w" in items.note
     counts = T.category_table(result)
-    assert counts.values[0][1] == int((answers[:, 0] == 1).sum())  # item a, first category: rows, unweighted
+    assert counts.values[0][1] == int((answers[:, 0] == 1).sum())  # item a, answer 1: rows, unweighted
     assert "counted once each, unweighted" in counts.note
     plain = cfa_tool.fit("factor f: a, b, c, d\n", data.drop(columns="w"), ordinal="all")
     assert "weighted" not in T.item_table(plain).note and "weighted" not in T.category_table(plain).note
@@ -121,3 +124,22 @@ def test_the_json_names_the_pieces_of_the_scale_shifted_statistic_and_older_file
     assert code == 0 and all(f"**{t['title']}**" in shown for t in saved["report"]["tables"] if "_" not in t["title"])
     assert "Scaled chi-square" in shown
     assert copy.read_bytes() == old.read_bytes()  # the saved file left as it was
+
+
+def test_answer_columns_are_codes_and_a_category_of_one_answer_is_named():
+    """One item answered 0 once (outside the others' 1 to 5): its count stands under the column '0', not under
+    another item's 1, and the note says its threshold rests on one answer (counts by hand below)."""
+    import pandas as pd
+
+    rng = np.random.default_rng(7)
+    f = rng.normal(size=300)
+    answers = np.clip(np.round(3 + f[:, None] * 0.8 + rng.normal(size=(300, 4)) * 0.8), 1, 5)
+    answers[12, 1] = 0
+    data = pd.DataFrame(answers, columns=list("abcd"))
+    table = T.category_table(cfa_tool.fit("factor f: a, b, c, d\n", data, ordinal="all"))
+    assert list(table.columns[1:]) == ["0", "1", "2", "3", "4", "5"]
+    row_a, row_b = table.values[0], table.values[1]
+    assert row_a[1] is None and row_b[1] == 1  # a never answered 0; b once
+    assert list(row_b[2:]) == [int((answers[:, 1] == v).sum()) or None for v in (1, 2, 3, 4, 5)]
+    assert "Answered by one row only: b 0; a threshold next to such a category rests on that one answer" in table.note
+    assert 1 in table.flagged

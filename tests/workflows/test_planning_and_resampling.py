@@ -74,17 +74,18 @@ def test_default_population_is_standardized_whatever_the_scaling(scaling):
 
 
 def test_reverse_keyed_items_take_negative_default_loadings():
-    # a: the marker of f, reverse-keyed, so f points the reversed way and b, d (worded with the trait) load
-    # negatively on it; h is reversed in g, whose marker e is not (signs by construction of the defaults)
+    # a is reverse-keyed, so the marker of f is b, the first item worded with the trait, and f points the
+    # trait's way: a and c load negatively on it, d positively; h is reversed in g, whose marker e is not
+    # (signs by construction of the defaults)
     spec = parse_model("factor f: a, b, c, d\nfactor g: e, h, i\nreversed a, c, h on 1 to 5\n")
     theta = dict(zip(*[(population := population_from_spec(spec)).table.free_labels, population.theta]))
     # standardized defaults of -.7 for reverse-keyed items, .7 for the rest, in the markers' units: +-1
     loadings = {k: round(v, 8) for k, v in theta.items() if k.startswith("loading")}
-    assert loadings == {"loading(f, b)": -1.0, "loading(f, c)": 1.0, "loading(f, d)": -1.0, "loading(g, h)": -1.0,
+    assert loadings == {"loading(f, a)": -1.0, "loading(f, c)": -1.0, "loading(f, d)": 1.0, "loading(g, h)": -1.0,
                         "loading(g, i)": 1.0}
     standardized = {(v["variables"][0], v["variables"][1]): v["standardized"] for v in population.values()
                     if v["kind"] == "loading"}
-    assert standardized[("f", "b")] == pytest.approx(-0.7) and standardized[("g", "h")] == pytest.approx(-0.7)
+    assert standardized[("f", "a")] == pytest.approx(-0.7) and standardized[("g", "h")] == pytest.approx(-0.7)
 
 
 def test_simulated_ordinal_and_missing_data():

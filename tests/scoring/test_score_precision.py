@@ -1,0 +1,50 @@
+"""How precise one person's score is, in plain words (scores report).
+
+Check values by hand: for one factor, the regression score's error variance is Phi - Phi^2 l' Sigma^-1 l with
+Sigma = l Phi l' + Theta (Thurstone 1935's regression estimator; the mean squared error of a best linear
+predictor), the 95% band is +/-1.96 SE and the smallest difference two people's scores need to exceed chance at
+the 5% level is 1.96 sqrt(2) SE (Gulliksen 1950; recalled from memory, common practice)."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.reporting.score_report import scores_report
+from cfa_tool.scoring.methods import ScoreMethod
+
+
+def test_standard_error_band_and_smallest_difference_by_hand(hs_data):
+    result = cfa_tool.scores("factor visual: x1, x2, x3\n", hs_data)
+    est = {(r.kind, r.variables): r.estimate for r in result.fit.estimates}
+    lam = np.array([est[("loading", ("visual", f"x{i}"))] for i in (1, 2, 3)])
+    theta = np.diag([est[("residual_variance", (f"x{i}",))] for i in (1, 2, 3)])
+    phi = est[("factor_variance", ("visual",))]
+    sigma = phi * np.outer(lam, lam) + theta
+    se = np.sqrt(phi - phi**2 * lam @ np.linalg.solve(sigma, lam))
+    (p,) = result.quality[0].precision(ScoreMethod.REGRESSION)
+    assert p.standard_error == pytest.approx(se, rel=1e-8)
+    assert p.band == pytest.approx(1.959964 * se, rel=1e-6)
+    assert p.smallest_difference == pytest.approx(1.959964 * np.sqrt(2) * se, rel=1e-6)
+    assert p.band_in_sd == pytest.approx(1.959964 * se / np.sqrt(phi), rel=1e-6)
+    # the regression score's reliability is 1 - SE^2 / Phi (its squared correlation with the factor)
+    assert p.reliability == pytest.approx(1 - se**2 / phi, rel=1e-8)
+    report = scores_report(result)
+    table = next(t for t in report.tables if t.title.startswith("How precise"))
+    assert table.rows[0][:3] == ("visual", f"{se:.2f}", f"±{1.959964 * se:.2f}")
+    # three items of a reliability below .90: the caution beside the one on high-stakes use
+    low = [c for c in report.cautions if "below the .90 that decisions about individuals usually need" in c]
+    assert len(low) == 1 and f"visual {p.reliability:.2f}".replace("0.", ".") in low[0]
+
+
+def test_no_precision_caution_when_the_scores_are_reliable_enough():
+    rng = np.random.default_rng(12)
+    eta = rng.normal(size=(600, 1))
+    data = pd.DataFrame(eta * 0.95 + rng.normal(size=(600, 8)) * np.sqrt(1 - 0.95**2),
+                        columns=[f"q{i}" for i in range(1, 9)])
+    result = cfa_tool.scores("factor f: q1..q8\n", data)
+    (p,) = result.quality[0].precision(ScoreMethod.REGRESSION)
+    assert p.reliability > 0.9
+    assert not [c for c in scores_report(result).cautions if "decisions about individuals usually need" in c]
