@@ -110,3 +110,13 @@ def test_resampled_moments_computed_together_equal_each_resamples_own(hs_data):
     # a resample's moments do not depend on the others computed with it
     alone = bootstrap_module.resampled_moments(rows, names, seeds[2:3])[0]
     assert np.array_equal(alone.covariance, together[2].covariance) and np.array_equal(alone.means, together[2].means)
+
+
+def test_large_models_are_fitted_in_smaller_batches():
+    """Replications fitted together keep each stacked (R, q, q) array within its budget: a questionnaire model takes
+    the full batch, a 120-item model (about 300 free parameters) fewer replications at a time."""
+    from cfa_tool.workflows.parallel import REFITS_TOGETHER, STACK_BYTES, refits_together
+
+    assert refits_together(REFITS_TOGETHER, 21) == REFITS_TOGETHER
+    large = refits_together(REFITS_TOGETHER, 306)
+    assert 1 <= large < REFITS_TOGETHER and 8 * large * 306**2 <= STACK_BYTES < 8 * (large + 1) * 306**2
