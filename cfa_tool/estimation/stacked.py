@@ -258,12 +258,12 @@ def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarr
         newton, newton_ok = np.full((n, q), np.nan), np.zeros(n, dtype=bool)
         tried = (previous > NEAR_MINIMUM) & (previous < CLOSED_FORM_NEWTON_BELOW)
         if tried.any():
-            newton[tried], newton_ok[tried] = _solve(N[tried], -g[tried])
+            newton[tried], newton_ok[tried] = _solve(*_kept(tried, N, g), negated=True)
         newton_first = tried & newton_ok
         scoring, scoring_ok = np.full((n, q), np.nan), np.zeros(n, dtype=bool)
         scored = ~newton_first
         if scored.any():
-            scoring[scored], scoring_ok[scored] = _solve(H[scored], -g[scored], positive_definite=False)
+            scoring[scored], scoring_ok[scored] = _solve(*_kept(scored, H, g), negated=True, positive_definite=False)
         step = np.where(newton_first[:, None], newton, scoring)
         decrement = -np.einsum("ij,ij->i", g, step)
         done = (newton_first | scoring_ok) & (decrement < TOLERANCE)
@@ -274,7 +274,7 @@ def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarr
         last_step = newton_first & (decrement**3 < 1e-2 * TOLERANCE * previous**2)
         late = scored & scoring_ok & ~tried & ~done & (decrement < CLOSED_FORM_NEWTON_BELOW)
         if late.any():
-            newton[late], newton_ok[late] = _solve(N[late], -g[late])
+            newton[late], newton_ok[late] = _solve(*_kept(late, N, g), negated=True)
         switch = scored & newton_ok
         step = np.where(switch[:, None], newton, step)
         go = ~done & (newton_first | scoring_ok) & np.isfinite(step).all(axis=1)
@@ -362,11 +362,15 @@ def _cholesky(A: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return factor, ok
 
 
-def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True) -> tuple[np.ndarray, np.ndarray]:
-    """Solutions of H_r x_r = b_r for a stack of symmetric matrices scaled to unit diagonal (as
-    numerics.linalg.scaled_solve does for one), and which of them were found: with ``positive_definite``
-    only those of positive definite H_r (checked by a Cholesky factorisation), otherwise those of
-    nonsingular H_r; the solutions not found are NaN."""
+def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True, negated: bool = False
+           ) -> tuple[np.ndarray, np.ndarray]:
+    """Solutions of H_r x_r = b_r (with ``negated``, of H_r x_r = -b_r) for a stack of symmetric matrices scaled
+    to unit diagonal (as numerics.linalg.scaled_solve does for one), and which of them were found: with
+    ``positive_definite`` only those of positive definite H_r (checked by a Cholesky factorisation), otherwise
+    those of nonsingular H_r; the solutions not found are NaN.  Stacks are passed whole when every matrix is
+    wanted (no copies)."""
+    if negated:
+        b = -b
     d = 1.0 / np.sqrt(np.maximum(np.abs(np.diagonal(H, axis1=1, axis2=2)), 1e-300))
     scaled = H * (d[:, :, None] * d[:, None, :])
     if positive_definite:
@@ -375,10 +379,11 @@ def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True) -> tupl
         ok = np.isfinite(scaled).all(axis=(1, 2))
     x = np.full_like(b, np.nan)
     if ok.any():  # numpy's stacked LU kernel (behind np.linalg.solve): NaN for a singular matrix, not an error
-        left, right = scaled[ok], (d * b)[ok][:, :, None]
+        left, right, scale = _kept(ok, scaled, d * b, d)
+        right = right[:, :, None]
         with np.errstate(invalid="ignore", over="ignore", divide="ignore", under="ignore"):
             x[ok] = _stacked(lambda: _umath_linalg.solve(left, right, signature="dd->d"), np.linalg.solve, left,
-                             right)[:, :, 0] * d[ok]
+                             right)[:, :, 0] * scale
     return x, ok & np.isfinite(x).all(axis=1)
 
 
