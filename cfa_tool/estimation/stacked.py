@@ -86,6 +86,7 @@ class StackedNormal:
         nb = self.p + 2 * self.m
         self._uv = basis.u * nb + basis.v
         self._second = model.second_orders[0]
+        self._triangle = _Triangle.of(basis, self._second)
 
     def _sigma(self, theta: np.ndarray):
         """L (R, p, m), P (R, m, m), L P and Sigma = L P L' + T (R, p, p) at a stack of parameter vectors."""
@@ -111,12 +112,22 @@ class StackedNormal:
         ``rows`` at their ``theta``; entries of replications whose Sigma is not positive definite
         (ok False) are meaningless.  Computed in blocks of :data:`BLOCK` replications, whose arrays stay
         in the processor's cache."""
-        if len(theta) <= BLOCK:
-            return self._evaluate(theta, rows, observed)
-        parts = [self._evaluate(theta[k:k + BLOCK], rows[k:k + BLOCK], observed) for k in range(0, len(theta), BLOCK)]
-        return tuple(None if parts[0][i] is None else np.concatenate([part[i] for part in parts]) for i in range(5))
+        R, q = theta.shape
+        information = np.empty((R, q, q))
+        hessian = np.empty((R, q, q)) if observed else None
+        if R <= BLOCK:
+            return self._evaluate(theta, rows, information, hessian)
+        value, gradient, ok = np.empty(R), np.empty((R, q)), np.empty(R, dtype=bool)
+        for k in range(0, R, BLOCK):  # each block writes its part of the (R, q, q) arrays, no joining copies
+            block = slice(k, k + BLOCK)
+            value[block], gradient[block], _, _, ok[block] = self._evaluate(
+                theta[block], rows[block], information[block], None if hessian is None else hessian[block])
+        return value, gradient, information, hessian, ok
 
-    def _evaluate(self, theta: np.ndarray, rows: np.ndarray, observed: bool):
+    def _evaluate(self, theta: np.ndarray, rows: np.ndarray, information_out: np.ndarray,
+                  hessian_out: np.ndarray | None):
+        """:meth:`evaluate` of one block, its information and Hessian written into ``information_out`` and
+        ``hessian_out`` (None: no Hessian)."""
         L, P, LP, sigma = self._sigma(theta)
         R, p, m = len(theta), self.p, self.m
         factor, ok = _cholesky(sigma)
@@ -137,46 +148,84 @@ class StackedNormal:
         Vt = np.swapaxes(V, 1, 2)
         K = (Vt @ (inverse @ V)).reshape(R, -1)
         Q = (Vt @ (W @ V)).reshape(R, -1)
-        b = self._basis
         take = np.take  # gathers along one axis: several times faster than fancy indexing with 2-d index arrays
-        gradient = 2.0 * b.c * take(Q, self._uv, axis=1)
-        Kuv = take(K, b.uv, axis=1)
-        Kvu = np.swapaxes(Kuv, 1, 2)
-        Kuu, Kvv = take(K, b.uu, axis=1), take(K, b.vv, axis=1)
+        gradient = 2.0 * self._basis.c * take(Q, self._uv, axis=1)
+        # the information and the Hessian are symmetric: their entries are computed on the upper triangle
+        # (pairs e <= f, flat (R, T)) and spread to both halves at the end
+        tri = self._triangle
+        Kuv, Kvu = take(K, tri.uv, axis=1), take(K, tri.vu, axis=1)
+        Kuu, Kvv = take(K, tri.uu, axis=1), take(K, tri.vv, axis=1)
         information = Kuu * Kvv
         information += Kuv * Kvu
-        information *= 2.0 * b.cc
+        information *= tri.cc2
         hessian = None
-        if observed:
-            cross = take(Q, b.vu, axis=1) * Kuv
-            cross += take(Q, b.vv, axis=1) * Kuu
-            cross += take(Q, b.uu, axis=1) * Kvv
-            cross += take(Q, b.uv, axis=1) * Kvu
-            cross *= b.cc
-            hessian = information - cross - np.swapaxes(cross, 1, 2) + self._second_derivatives(W, P, Q)
-        if not self._identity:
+        if hessian_out is not None:
+            # the cross term tr(Sigma^-1 D_e W D_f) is symmetric in (e, f) (K and Q are), so the Hessian's
+            # information - cross - cross' is information - 2 cross
+            cross = take(Q, tri.vu, axis=1) * Kuv
+            cross += take(Q, tri.vv, axis=1) * Kuu
+            cross += take(Q, tri.uu, axis=1) * Kvv
+            cross += take(Q, tri.uv, axis=1) * Kvu
+            cross *= tri.cc2
+            hessian = information - cross + self._second_derivatives(W, P, Q)
+        if self._identity:
+            take(information, tri.full, axis=1, out=information_out.reshape(R, -1), mode="clip")
+            if hessian is not None:
+                take(hessian, tri.full, axis=1, out=hessian_out.reshape(R, -1), mode="clip")
+        else:
             J = self._J
             gradient = gradient @ J
-            information = J.T @ information @ J
+            information_out[...] = J.T @ take(information, tri.full, axis=1).reshape(R, tri.size, tri.size) @ J
             if hessian is not None:
-                hessian = J.T @ hessian @ J
-        if hessian is not None:
-            hessian = 0.5 * (hessian + np.swapaxes(hessian, 1, 2))
-        return value, gradient, information, hessian, ok
+                hessian_out[...] = J.T @ take(hessian, tri.full, axis=1).reshape(R, tri.size, tri.size) @ J
+        return value, gradient, information_out, hessian_out, ok
 
     def _second_derivatives(self, W: np.ndarray, P: np.ndarray, Q: np.ndarray) -> np.ndarray:
-        """tr(W d2Sigma / de de') for every pair of active entries (rank_two.second_derivative_contraction
-        with a leading axis: M L is the block Q[:p, p+m:] of Q, since V starts with I and ends with L)."""
-        layout, R, p, m = self._second, len(W), self.p, self.m
-        out = np.zeros((R, layout.size * layout.size))
+        """tr(W d2Sigma / de de') for the pairs e <= f of active entries, (R, T) (rank_two.second_derivative_contraction
+        with a leading axis, on the upper triangle: M L is the block Q[:p, p+m:] of Q, since V starts with I and ends
+        with L)."""
+        layout, tri, R, p, m = self._second, self._triangle, len(W), self.p, self.m
+        out = np.zeros((R, tri.pairs))
         take = np.take
-        out[:, layout.load_load] = 2.0 * take(W.reshape(R, -1), layout.m_at, axis=1) * take(P.reshape(R, -1), layout.p_at, axis=1)
+        out[:, tri.load_load] = 2.0 * take(W.reshape(R, -1), tri.m_at, axis=1) * take(P.reshape(R, -1), tri.p_at, axis=1)
         if len(layout.load_cov):
             ML = Q.reshape(R, p + 2 * m, p + 2 * m)[:, :p, p + m:].reshape(R, -1)
-            term = take(ML, layout.first, axis=1) * layout.first_weight + take(ML, layout.second, axis=1) * layout.second_weight
-            out[:, layout.load_cov] = term
-            out[:, layout.cov_load] = term
-        return out.reshape(R, layout.size, layout.size)
+            out[:, tri.load_cov] = (take(ML, layout.first, axis=1) * layout.first_weight
+                                    + take(ML, layout.second, axis=1) * layout.second_weight)
+        return out
+
+
+@dataclass(frozen=True)
+class _Triangle:
+    """Where the pairs e <= f of active entries (the upper triangle of the E x E information, T pairs) read
+    K, Q and the second derivatives, and how the triangle spreads back to the full E x E matrix."""
+
+    size: int  # E
+    pairs: int  # T = E (E + 1) / 2
+    uu: np.ndarray  # flat positions in K and Q (rank_two.EntryBasis) of each pair
+    vv: np.ndarray
+    uv: np.ndarray
+    vu: np.ndarray
+    cc2: np.ndarray  # 2 c_e c_f
+    full: np.ndarray  # for each flat position of the E x E matrix, its pair in the triangle
+    load_load: np.ndarray  # the pairs of two loadings (rank_two.SecondOrderLayout) and where they read M and P
+    m_at: np.ndarray
+    p_at: np.ndarray
+    load_cov: np.ndarray  # the pairs of a loading and a factor (co)variance, in the layout's order
+
+    @staticmethod
+    def of(basis, layout) -> "_Triangle":
+        E = len(basis.u)
+        upper = np.flatnonzero(np.triu(np.ones((E, E), dtype=bool)))
+        pair = np.full(E * E, -1)
+        pair[upper] = np.arange(len(upper))
+        full = pair.reshape(E, E)
+        full = np.where(full >= 0, full, full.T).ravel()
+        in_upper = pair[layout.load_load] >= 0  # each pair of loadings appears twice in the layout, (e, f) and (f, e)
+        load_cov = np.where(pair[layout.load_cov] >= 0, pair[layout.load_cov], pair[layout.cov_load])
+        return _Triangle(E, len(upper), basis.uu.ravel()[upper], basis.vv.ravel()[upper], basis.uv.ravel()[upper],
+                         basis.vu.ravel()[upper], 2.0 * basis.cc.ravel()[upper], full, pair[layout.load_load[in_upper]],
+                         layout.m_at[in_upper], layout.p_at[in_upper], load_cov)
 
 
 def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarray, max_iterations: int = 200) -> StackedFits:
@@ -209,12 +258,12 @@ def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarr
         newton, newton_ok = np.full((n, q), np.nan), np.zeros(n, dtype=bool)
         tried = (previous > NEAR_MINIMUM) & (previous < CLOSED_FORM_NEWTON_BELOW)
         if tried.any():
-            newton[tried], newton_ok[tried] = _solve(N[tried], -g[tried])
+            newton[tried], newton_ok[tried] = _solve(*_kept(tried, N, g), negated=True)
         newton_first = tried & newton_ok
         scoring, scoring_ok = np.full((n, q), np.nan), np.zeros(n, dtype=bool)
         scored = ~newton_first
         if scored.any():
-            scoring[scored], scoring_ok[scored] = _solve(H[scored], -g[scored], positive_definite=False)
+            scoring[scored], scoring_ok[scored] = _solve(*_kept(scored, H, g), negated=True, positive_definite=False)
         step = np.where(newton_first[:, None], newton, scoring)
         decrement = -np.einsum("ij,ij->i", g, step)
         done = (newton_first | scoring_ok) & (decrement < TOLERANCE)
@@ -225,7 +274,7 @@ def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarr
         last_step = newton_first & (decrement**3 < 1e-2 * TOLERANCE * previous**2)
         late = scored & scoring_ok & ~tried & ~done & (decrement < CLOSED_FORM_NEWTON_BELOW)
         if late.any():
-            newton[late], newton_ok[late] = _solve(N[late], -g[late])
+            newton[late], newton_ok[late] = _solve(*_kept(late, N, g), negated=True)
         switch = scored & newton_ok
         step = np.where(switch[:, None], newton, step)
         go = ~done & (newton_first | scoring_ok) & np.isfinite(step).all(axis=1)
@@ -234,9 +283,7 @@ def fit_stacked(model: StructuredModel, covariances: np.ndarray, start: np.ndarr
         running, f, g, H, step, previous, last_step = _kept(go, running, f, g, H, step, previous, last_step)
         if len(running) == 0:
             break
-        trial, t, found = _line_search(objective, theta[running], f, g, step, running)
-        running, trial, t, previous, last_step = _kept(found, running, trial, t, previous, last_step)
-        f, g, H, N, ok = objective.evaluate(trial, running)
+        trial, t, f, g, H, N, ok = _step(objective, theta[running], f, g, step, running)
         running, trial, t, previous, last_step, f, g, H, N = _kept(ok, running, trial, t, previous, last_step, f, g, H, N)
         theta[running], value[running] = trial, f
         iterations[running] = it
@@ -254,21 +301,43 @@ def _kept(keep: np.ndarray, *arrays: np.ndarray) -> tuple:
     return tuple(a[keep] for a in arrays)
 
 
-def _line_search(objective: StackedNormal, theta: np.ndarray, f0: np.ndarray, g: np.ndarray, step: np.ndarray,
-                 rows: np.ndarray):
-    """Backtracking, per replication, until F falls by the Armijo share of the decrease its step
-    promises (steepest descent where the step is not a descent direction): (trial points, step
-    lengths, found)."""
+def _step(objective: StackedNormal, theta: np.ndarray, f0: np.ndarray, g: np.ndarray, step: np.ndarray,
+          rows: np.ndarray):
+    """Each replication's next point, where F falls by the Armijo share of the decrease its step promises
+    (steepest descent where the step is not a descent direction), evaluated there: (points, step lengths,
+    value, gradient, information, Hessian, found).  Near the minimum the full step is nearly always taken,
+    so the full step's point is evaluated at once and its value tested; only the replications whose full step
+    fails the test search backwards from half of it (:func:`_line_search`), and the point found is then
+    evaluated.  The points are those of a backtracking search from the full step."""
     slope = np.einsum("ij,ij->i", g, step)
     uphill = slope >= 0
     if uphill.any():
         step = np.where(uphill[:, None], -g, step)
         slope = np.einsum("ij,ij->i", g, step)
-    t = np.ones(len(theta))
     trial = theta + step
+    f, gradient, information, hessian, ok = objective.evaluate(trial, rows)
+    ok &= f <= f0 + ARMIJO * slope  # evaluate's ok already requires a finite value
+    t = np.ones(len(theta))
+    if ok.all():
+        return trial, t, f, gradient, information, hessian, ok
+    rest = np.flatnonzero(~ok)
+    t[rest], trial[rest], found = _line_search(objective, theta[rest], f0[rest], slope[rest], step[rest], rows[rest])
+    again = rest[found]
+    if len(again):
+        f[again], gradient[again], information[again], hessian[again], ok[again] = objective.evaluate(trial[again],
+                                                                                                     rows[again])
+    return trial, t, f, gradient, information, hessian, ok
+
+
+def _line_search(objective: StackedNormal, theta: np.ndarray, f0: np.ndarray, slope: np.ndarray, step: np.ndarray,
+                 rows: np.ndarray):
+    """Backtracking from half of each (descent) ``step``, per replication, until F falls by the Armijo share of
+    the decrease the step promises (``slope`` = g' step): (step lengths, points, found)."""
+    t = np.full(len(theta), 0.5)
+    trial = theta + 0.5 * step
     found = np.zeros(len(theta), dtype=bool)
     pending = np.arange(len(theta))
-    for _ in range(HALVINGS):
+    for _ in range(HALVINGS - 1):  # the full step was the first try
         f = objective.value(trial[pending], rows[pending])
         accept = np.isfinite(f) & (f <= f0[pending] + ARMIJO * t[pending] * slope[pending])
         found[pending[accept]] = True
@@ -277,7 +346,7 @@ def _line_search(objective: StackedNormal, theta: np.ndarray, f0: np.ndarray, g:
             break
         t[pending] *= 0.5
         trial[pending] = theta[pending] + t[pending, None] * step[pending]
-    return trial, t, found
+    return t, trial, found
 
 
 def _cholesky(A: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -293,11 +362,15 @@ def _cholesky(A: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return factor, ok
 
 
-def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True) -> tuple[np.ndarray, np.ndarray]:
-    """Solutions of H_r x_r = b_r for a stack of symmetric matrices scaled to unit diagonal (as
-    numerics.linalg.scaled_solve does for one), and which of them were found: with ``positive_definite``
-    only those of positive definite H_r (checked by a Cholesky factorisation), otherwise those of
-    nonsingular H_r; the solutions not found are NaN."""
+def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True, negated: bool = False
+           ) -> tuple[np.ndarray, np.ndarray]:
+    """Solutions of H_r x_r = b_r (with ``negated``, of H_r x_r = -b_r) for a stack of symmetric matrices scaled
+    to unit diagonal (as numerics.linalg.scaled_solve does for one), and which of them were found: with
+    ``positive_definite`` only those of positive definite H_r (checked by a Cholesky factorisation), otherwise
+    those of nonsingular H_r; the solutions not found are NaN.  Stacks are passed whole when every matrix is
+    wanted (no copies)."""
+    if negated:
+        b = -b
     d = 1.0 / np.sqrt(np.maximum(np.abs(np.diagonal(H, axis1=1, axis2=2)), 1e-300))
     scaled = H * (d[:, :, None] * d[:, None, :])
     if positive_definite:
@@ -306,10 +379,11 @@ def _solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = True) -> tupl
         ok = np.isfinite(scaled).all(axis=(1, 2))
     x = np.full_like(b, np.nan)
     if ok.any():  # numpy's stacked LU kernel (behind np.linalg.solve): NaN for a singular matrix, not an error
-        left, right = scaled[ok], (d * b)[ok][:, :, None]
+        left, right, scale = _kept(ok, scaled, d * b, d)
+        right = right[:, :, None]
         with np.errstate(invalid="ignore", over="ignore", divide="ignore", under="ignore"):
             x[ok] = _stacked(lambda: _umath_linalg.solve(left, right, signature="dd->d"), np.linalg.solve, left,
-                             right)[:, :, 0] * d[ok]
+                             right)[:, :, 0] * scale
     return x, ok & np.isfinite(x).all(axis=1)
 
 

@@ -57,7 +57,10 @@ class _OneBlasThread:
 @lru_cache(maxsize=1)
 def blas_libraries() -> tuple:
     """The BLAS libraries loaded in this process (threadpoolctl finds them, once: the search reads every
-    loaded library and costs milliseconds)."""
+    loaded library and costs milliseconds).  numpy is imported first: its BLAS is the one the fits use, and a
+    search made before it is loaded would find none and be kept, leaving every later limit without effect."""
+    import numpy  # noqa: F401
+
     from threadpoolctl import ThreadpoolController
 
     return tuple(lib for lib in ThreadpoolController().lib_controllers if lib.user_api == "blas")

@@ -53,7 +53,7 @@ from cfa_tool.pipeline.inputs import (_fit_rows, converged, design_test, moments
                                       with_odd_values, without_exploratory_blocks)
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
-from cfa_tool.workflows.parallel import REFITS_TOGETHER, run_tasks
+from cfa_tool.workflows.parallel import REFITS_TOGETHER, refits_together, run_tasks
 
 
 #: why an ordinal fit is not bootstrapped under a design (one message for the Python call and the command)
@@ -390,7 +390,8 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     start = result.theta
     seeds = np.random.SeedSequence(seed).generate_state(2 * replications)
     tasks = [(spec, moments_rows, names, int(s), start, design, gaps) for s in seeds[:replications]]
-    draws = run_tasks(_replicate, tasks, workers, scheduler, progress, REFITS_TOGETHER, batched=True)
+    draws = run_tasks(_replicate, tasks, workers, scheduler, progress, refits_together(REFITS_TOGETHER, len(start)),
+                      batched=True)
     ok = [d for d in draws if d[0]]
     if len(ok) < 2:
         raise EstimationError(f"{len(ok)} of {replications} bootstrap resamples could be fitted, too few for intervals; "
@@ -407,7 +408,8 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
         transformed = bollen_stine_rows(moments_rows, result.implied_covariance,
                                         design.weights if design is not None else None)
         btasks = [(spec, transformed, names, int(s), start, design, False) for s in seeds[replications:]]
-        bdraws = [d for d in run_tasks(_replicate, btasks, workers, scheduler, progress, REFITS_TOGETHER, batched=True)
+        bdraws = [d for d in run_tasks(_replicate, btasks, workers, scheduler, progress,
+                                         refits_together(REFITS_TOGETHER, len(start)), batched=True)
                   if d[0]]
         converged_bs = len(bdraws)
         if bdraws:

@@ -42,7 +42,7 @@ from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import build_parameter_table
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
-from cfa_tool.workflows.parallel import REFITS_TOGETHER, run_tasks
+from cfa_tool.workflows.parallel import REFITS_TOGETHER, refits_together, run_tasks
 from cfa_tool.workflows.simulation import simulate_rows
 
 LEVELS = (0.95, 0.90)
@@ -292,7 +292,8 @@ def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.
     def sample(sigma: np.ndarray, n: int) -> np.ndarray:
         states = seeds.spawn(1)[0].generate_state(replications)
         tasks = [(spec, sigma, result.observed, n, int(s), result.theta, patterns, mean) for s in states]
-        draws = run_tasks(_replicate, tasks, workers, scheduler, progress, REFITS_TOGETHER, batched=True)
+        draws = run_tasks(_replicate, tasks, workers, scheduler, progress,
+                          refits_together(REFITS_TOGETHER, len(result.theta)), batched=True)
         return np.array([d[1:] for d in draws if d[0]]).reshape(-1, len(INDICES))
 
     return sample

@@ -18,7 +18,7 @@ from cfa_tool import options as check
 from cfa_tool.errors import OptionError
 from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fits
 from cfa_tool.language.spec import Spec
-from cfa_tool.workflows.parallel import REFITS_TOGETHER, run_tasks
+from cfa_tool.workflows.parallel import REFITS_TOGETHER, refits_together, run_tasks
 from cfa_tool.workflows.simulation import population_from_spec, simulate_rows
 from cfa_tool.views import Presentable
 
@@ -141,7 +141,8 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
                               scheduler, progress)
     tasks = [(spec, population.sigma, population.observed, n, int(s), population.theta)
              for n, stream in zip(sizes, streams) for s in stream.generate_state(replications)]
-    results = run_tasks(_replicate, tasks, workers, scheduler, progress, REFITS_TOGETHER, batched=True)
+    results = run_tasks(_replicate, tasks, workers, scheduler, progress,
+                        refits_together(REFITS_TOGETHER, len(population.theta)), batched=True)
     powers = tuple(_summary(population, n, replications, seed, alpha, results[k * replications:(k + 1) * replications])
                    for k, n in enumerate(sizes))
     return powers[0] if len(sizes) == 1 else PowerCurve(powers)

@@ -13,8 +13,16 @@ from cfa_tool.errors import OptionError
 from cfa_tool.numerics.threads import blas_libraries, one_blas_thread_from_now
 
 
-REFITS_TOGETHER = 250  # replications a workflow fits together (pipeline.continuous.replicate_fits): enough to
-# spread each stacked iteration's fixed cost, few enough that 1,000 resamples still keep two processes busy
+REFITS_TOGETHER = 500  # replications a workflow fits together (pipeline.continuous.replicate_fits): enough to
+# spread each stacked iteration's fixed cost and the few slow replications' last iterations (each batch waits for
+# its slowest), and 1,000 resamples are one batch for each of two processes
+STACK_BYTES = 64 * 2**20  # the most one (R, q, q) array of R replications' q x q matrices may take
+
+
+def refits_together(most: int, free: int) -> int:
+    """How many replications of a model of ``free`` parameters to fit together: ``most``, fewer when their
+    (R, q, q) information matrices would take more than :data:`STACK_BYTES` (a model of a hundred items)."""
+    return max(1, min(most, STACK_BYTES // (8 * max(free, 1) ** 2)))
 
 
 def default_workers() -> int:

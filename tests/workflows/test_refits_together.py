@@ -78,6 +78,23 @@ def test_worker_processes_compute_with_one_blas_thread_each():
     assert counts and all(c == [1] * len(c) and c for c in counts)
 
 
+def test_the_blas_libraries_are_found_when_first_asked_for_before_numpy_is_loaded():
+    """numerics.threads keeps the BLAS libraries it finds for the life of the process: asked for before numpy is
+    imported (a script that imports only the tool and runs a workflow), it must still find numpy's BLAS, or no
+    limit set later would apply.  Checked in a fresh process against threadpoolctl's own report once numpy is loaded."""
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    code = ("import sys\nfrom cfa_tool.numerics.threads import blas_libraries\nbefore = 'numpy' in sys.modules\n"
+            "found = len(blas_libraries())\nfrom threadpoolctl import threadpool_info\n"
+            "print(before, found, sum(lib['user_api'] == 'blas' for lib in threadpool_info()))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True,
+                         cwd=Path(__file__).resolve().parents[2]).stdout.split()
+    assert out[0] == "False"  # the case: numpy not yet loaded when the libraries are first asked for
+    assert int(out[1]) == int(out[2]) >= 1
+
+
 def test_resampled_moments_computed_together_equal_each_resamples_own(hs_data):
     """The bootstrap's moments of complete rows, computed from the counts of each row's draws, against numpy's
     own mean and covariance (np.cov, divisor N) of the rows each seed draws."""
@@ -93,3 +110,13 @@ def test_resampled_moments_computed_together_equal_each_resamples_own(hs_data):
     # a resample's moments do not depend on the others computed with it
     alone = bootstrap_module.resampled_moments(rows, names, seeds[2:3])[0]
     assert np.array_equal(alone.covariance, together[2].covariance) and np.array_equal(alone.means, together[2].means)
+
+
+def test_large_models_are_fitted_in_smaller_batches():
+    """Replications fitted together keep each stacked (R, q, q) array within its budget: a questionnaire model takes
+    the full batch, a 120-item model (about 300 free parameters) fewer replications at a time."""
+    from cfa_tool.workflows.parallel import REFITS_TOGETHER, STACK_BYTES, refits_together
+
+    assert refits_together(REFITS_TOGETHER, 21) == REFITS_TOGETHER
+    large = refits_together(REFITS_TOGETHER, 306)
+    assert 1 <= large < REFITS_TOGETHER and 8 * large * 306**2 <= STACK_BYTES < 8 * (large + 1) * 306**2
