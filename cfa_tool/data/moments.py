@@ -201,7 +201,8 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, valu
     """The named columns as floats (``values``: their :func:`item_values`, when already taken out), checked."""
     if values is None:
         values = numeric_columns(frame, names, source)
-    if not np.isfinite(values).all():
+    finite = bool(np.isfinite(values).all())
+    if not finite:
         infinite = np.isinf(values)
         if infinite.any():
             row, col = np.argwhere(infinite)[0]
@@ -218,7 +219,10 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, valu
                             f"{'have' if len(empty) > 1 else 'has'} no answers at all (every cell is empty); "
                             f"check the data file, or take the item out of the model")
     with np.errstate(invalid="ignore"):
-        largest = np.nanmax(np.abs(values), axis=0) if len(values) else np.zeros(values.shape[1])
+        if not len(values):
+            largest = np.zeros(values.shape[1])
+        else:  # without gaps the plain maximum (nanmax first copies the array)
+            largest = np.abs(values).max(axis=0) if finite else np.nanmax(np.abs(values), axis=0)
     if (largest > LARGEST_VALUE).any():
         col = int(np.flatnonzero(largest > LARGEST_VALUE)[0])
         row = int(np.nanargmax(np.abs(values[:, col])))
@@ -231,7 +235,7 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, valu
 
 def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], source: str) -> None:
     """Constant columns and exactly collinear columns are errors that name the columns."""
-    sds = np.sqrt(np.clip(np.diag(cov), 0.0, None))
+    sds = np.sqrt(np.maximum(cov.diagonal(), 0.0))
     constant = np.flatnonzero((sds == 0) | (sds <= 1e-13 * np.abs(means)))
     if len(constant):
         j = constant[0]
