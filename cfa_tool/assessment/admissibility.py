@@ -20,6 +20,7 @@ import numpy as np
 from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
+from cfa_tool.numerics.linalg import cholesky_log_det
 
 
 class ProblemKind(enum.Enum):
@@ -153,41 +154,40 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
     out: list[Problem] = []
     se_of = se_of or {}
     sigma = mats.implied_covariance()
-    total = np.diag(sigma)
-    for i, x in enumerate(observed):
-        theta = mats.T[i, i]
-        if theta < 0:
-            r2 = 1.0 - theta / total[i] if total[i] > 0 else float("nan")
-            label = f"residual_variance({x})"
-            se = se_of.get(label)
-            chance = (f" Its standard error is {_fmt(se)}, so it is {'not ' if theta / se > -1.96 else ''}clearly below "
-                      f"zero (z = {theta / se:.2f}).") if se and np.isfinite(se) and se > 0 else ""
-            out.append(Problem(
-                ProblemKind.NEGATIVE_RESIDUAL_VARIANCE, (label,), float(theta),
-                f"The residual (error) variance of {x} is negative ({_fmt(theta)}), so the factors would explain more than "
-                f"all of its variance (R-squared {r2:.3f}): impossible for real data.{chance}",
-                HEYWOOD_ADVICE, group))
-    for j, f in enumerate(latent):
-        if mats.P[j, j] < 0:
-            out.append(Problem(
-                ProblemKind.NEGATIVE_FACTOR_VARIANCE, (f"factor_variance({f})",), float(mats.P[j, j]),
-                f"The variance of factor {f} is negative ({_fmt(mats.P[j, j])}): impossible for a real trait.",
-                "Check that its indicators measure one thing (their correlations should be clearly positive after "
-                "reversing reverse-keyed items) and that the factor has enough indicators.", group))
+    total = sigma.diagonal()
+    t_diag = mats.T.diagonal()
+    for i in np.flatnonzero(t_diag < 0).tolist():
+        x, theta = observed[i], t_diag[i]
+        r2 = 1.0 - theta / total[i] if total[i] > 0 else float("nan")
+        label = f"residual_variance({x})"
+        se = se_of.get(label)
+        chance = (f" Its standard error is {_fmt(se)}, so it is {'not ' if theta / se > -1.96 else ''}clearly below "
+                  f"zero (z = {theta / se:.2f}).") if se and np.isfinite(se) and se > 0 else ""
+        out.append(Problem(
+            ProblemKind.NEGATIVE_RESIDUAL_VARIANCE, (label,), float(theta),
+            f"The residual (error) variance of {x} is negative ({_fmt(theta)}), so the factors would explain more than "
+            f"all of its variance (R-squared {r2:.3f}): impossible for real data.{chance}",
+            HEYWOOD_ADVICE, group))
+    for j in np.flatnonzero(mats.P.diagonal() < 0).tolist():
+        f = latent[j]
+        out.append(Problem(
+            ProblemKind.NEGATIVE_FACTOR_VARIANCE, (f"factor_variance({f})",), float(mats.P[j, j]),
+            f"The variance of factor {f} is negative ({_fmt(mats.P[j, j])}): impossible for a real trait.",
+            "Check that its indicators measure one thing (their correlations should be clearly positive after "
+            "reversing reverse-keyed items) and that the factor has enough indicators.", group))
     phi = mats.latent_covariance()
-    d = np.diag(phi)
+    d = phi.diagonal()
     if len(latent) > 1 and np.all(d > 0):
         corr = phi / np.sqrt(np.outer(d, d))
-        for i in range(len(latent)):
-            for j in range(i):
-                if abs(corr[i, j]) > 1.0:
-                    out.append(Problem(
-                        ProblemKind.FACTOR_CORRELATION_BEYOND_ONE, (f"factor_covariance({latent[j]}, {latent[i]})",),
-                        float(corr[i, j]),
-                        f"The correlation of factors {latent[j]} and {latent[i]} is {corr[i, j]:.3f}, beyond +/-1: impossible.",
-                        "The two factors are not distinct in these data: consider one factor for both item sets, or "
-                        "look for cross-loadings and residual covariances that the model leaves out.", group))
-        if not any(p.kind is ProblemKind.FACTOR_CORRELATION_BEYOND_ONE for p in out) and np.linalg.eigvalsh(phi)[0] < 0:
+        for i, j in zip(*(k.tolist() for k in np.nonzero(np.tril(np.abs(corr) > 1.0, -1)))):  # pairs i > j, row by row
+            out.append(Problem(
+                ProblemKind.FACTOR_CORRELATION_BEYOND_ONE, (f"factor_covariance({latent[j]}, {latent[i]})",),
+                float(corr[i, j]),
+                f"The correlation of factors {latent[j]} and {latent[i]} is {corr[i, j]:.3f}, beyond +/-1: impossible.",
+                "The two factors are not distinct in these data: consider one factor for both item sets, or "
+                "look for cross-loadings and residual covariances that the model leaves out.", group))
+        if (not any(p.kind is ProblemKind.FACTOR_CORRELATION_BEYOND_ONE for p in out)
+                and cholesky_log_det(phi) is None and np.linalg.eigvalsh(phi)[0] < 0):  # a factorisation: positive definite
             out.append(Problem(
                 ProblemKind.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(f"factor_variance({f})" for f in latent),
                 float(np.linalg.eigvalsh(corr)[0]),
@@ -195,8 +195,9 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
                 "combination of the factors would have a negative variance.",
                 "Some factors are nearly linear combinations of others; look at the factor correlations close to 1 in size "
                 "and consider merging factors.", group))
-    t_diag = np.diag(mats.T)
-    off = [(i, j) for i in range(len(observed)) for j in range(i) if mats.T[i, j] != 0]
+    off = []  # residual covariances: pairs i > j, row by row
+    if np.count_nonzero(mats.T) > np.count_nonzero(t_diag):
+        off = list(zip(*(k.tolist() for k in np.nonzero(np.tril(mats.T, -1)))))
     for i, j in off:
         if t_diag[i] > 0 and t_diag[j] > 0:
             r = mats.T[i, j] / np.sqrt(t_diag[i] * t_diag[j])
@@ -215,10 +216,10 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
                 "The residual covariance matrix is not positive definite: the residual covariances together imply a "
                 "negative variance for some combination of the items.",
                 "Too many or too large residual covariances: remove those the theory does not call for.", group))
-    sd_obs = np.sqrt(np.clip(total, 1e-300, None))
-    sd_lat = np.sqrt(np.clip(d, 1e-300, None))
+    sd_obs = np.sqrt(np.maximum(total, 1e-300))
+    sd_lat = np.sqrt(np.maximum(d, 1e-300))
     std = mats.L * sd_lat[None, :] / sd_obs[:, None]
-    negative = {i for i, x in enumerate(observed) if mats.T[i, i] < 0}
+    negative = set(np.flatnonzero(t_diag < 0).tolist())
     for i, j in zip(*np.nonzero(np.abs(std) > 1.0)):
         if i in negative:  # the same problem as the negative residual variance, already reported
             continue
@@ -233,7 +234,11 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
 def bound_problems(labels: tuple[str, ...], theta: np.ndarray, lower: np.ndarray, upper: np.ndarray) -> list[Problem]:
     """Free parameters held at a bound that the model sets: the unrestricted estimate lies beyond it."""
     out = []
-    for k, label in enumerate(labels):
+    with np.errstate(invalid="ignore"):  # infinite bounds are no bounds
+        near = [np.isfinite(limit) & (np.abs(theta - limit) <= 1e-8 * np.maximum(1.0, np.abs(limit)))
+                for limit in (lower, upper)]
+    for k in np.flatnonzero(near[0] | near[1]).tolist():
+        label = labels[k]
         for limit, word in ((lower[k], "lower"), (upper[k], "upper")):
             if np.isfinite(limit) and abs(theta[k] - limit) <= 1e-8 * max(1.0, abs(limit)):
                 out.append(Problem(
@@ -250,7 +255,7 @@ def identification_problems(labels: tuple[str, ...], se: np.ndarray, estimates: 
     barely determine those parameters (Kenny 1979 describes the typical cases: a factor with two indicators
     whose correlation with other factors is near zero, or a loading near zero on a factor with three)."""
     ratio = np.abs(se) / np.maximum(np.abs(estimates), 1e-8)
-    weak = [k for k in range(len(labels)) if np.isfinite(ratio[k]) and ratio[k] > 100 and se[k] > 10]
+    weak = np.flatnonzero(np.isfinite(ratio) & (ratio > 100) & (se > 10)).tolist()
     if not weak:
         return []
     return [Problem(
@@ -281,21 +286,37 @@ def solution_problems(table: ParameterTable, mats: list[ModelMatrices], theta: n
     se = (np.sqrt(np.clip(np.diag(cov_theta), 0.0, None)) if cov_theta is not None
           else np.full(len(theta), np.nan))
     out: list[Problem] = []
+    layout = table.derived("admissibility labels", _labels_of)
     for g, m in enumerate(mats):
         label = table.groups[g] if table.multigroup else None
         se_of = {}
-        for par in table.parameters:
-            if par.group == g and len(par.terms) == 1:
-                se_of[par.label] = float(se[par.terms[0][0]] * abs(par.terms[0][1]))
+        if (np.diag(m.T) < 0).any():  # standard errors are read only of negative residual variances
+            se_of = {name: float(se[k] * c) for name, k, c in layout.single_terms[g]}
         found = matrix_problems(m, table.observed, table.latent, label, se_of)
         out.extend(p for p in found if standardized_loadings or p.kind is not ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE)
     if table.n_free:
-        labels = list(table.free_labels)
-        for par in table.parameters:  # name each free parameter as its table row does: residual_variance(x9) [group]
-            if len(par.terms) == 1 and labels[par.terms[0][0]] == table.free_labels[par.terms[0][0]]:
-                suffix = f" [{table.groups[par.group]}]" if table.multigroup else ""
-                labels[par.terms[0][0]] = par.label + suffix
-        out.extend(bound_problems(tuple(labels), theta, table.lower, table.upper))
+        out.extend(bound_problems(layout.free_names, theta, table.lower, table.upper))
         if cov_theta is not None:
-            out.extend(identification_problems(tuple(labels), se, theta))
+            out.extend(identification_problems(layout.free_names, se, theta))
     return tuple(out)
+
+
+@dataclass(frozen=True)
+class _Labels:
+    """What the assessment reads of a table's labels, laid out once per table."""
+
+    single_terms: tuple[tuple[tuple[str, int, float], ...], ...]  # per group: (label, theta index, |coefficient|)
+    free_names: tuple[str, ...]  # each free parameter named as its table row does: residual_variance(x9) [group]
+
+
+def _labels_of(table: ParameterTable) -> _Labels:
+    single = [[] for _ in table.groups]
+    labels = list(table.free_labels)
+    for par in table.parameters:
+        if len(par.terms) == 1:
+            index, coefficient = par.terms[0]
+            single[par.group].append((par.label, index, abs(coefficient)))
+            if labels[index] == table.free_labels[index]:
+                suffix = f" [{table.groups[par.group]}]" if table.multigroup else ""
+                labels[index] = par.label + suffix
+    return _Labels(tuple(tuple(s) for s in single), tuple(labels))

@@ -175,10 +175,15 @@ def _may_stand_out(X: np.ndarray) -> np.ndarray:
     it), and at the bottom likewise; a column failing both has nothing to peel.  Comparisons with NaN keep a
     column (``_peeled`` judges it)."""
     finite = np.isfinite(X)
-    top = np.where(finite, X, -np.inf).max(axis=0, initial=-np.inf)
-    bottom = np.where(finite, X, np.inf).min(axis=0, initial=np.inf)
-    next_top = np.where(finite & (X < top), X, -np.inf).max(axis=0, initial=-np.inf)
-    next_bottom = np.where(finite & (X > bottom), X, np.inf).min(axis=0, initial=np.inf)
+    if finite.all():  # no gaps (the common case): the same extremes without masking every cell first
+        top, bottom = X.max(axis=0, initial=-np.inf), X.min(axis=0, initial=np.inf)
+        next_top = np.where(X < top, X, -np.inf).max(axis=0, initial=-np.inf)
+        next_bottom = np.where(X > bottom, X, np.inf).min(axis=0, initial=np.inf)
+    else:
+        top = np.where(finite, X, -np.inf).max(axis=0, initial=-np.inf)
+        bottom = np.where(finite, X, np.inf).min(axis=0, initial=np.inf)
+        next_top = np.where(finite & (X < top), X, -np.inf).max(axis=0, initial=-np.inf)
+        next_bottom = np.where(finite & (X > bottom), X, np.inf).min(axis=0, initial=np.inf)
     quiet = (top - next_top < next_top - bottom) & (next_bottom - bottom < top - next_bottom)
     return np.flatnonzero(~quiet)
 
@@ -220,9 +225,13 @@ def _summary_rows(X: np.ndarray, base: np.ndarray) -> dict[int, OddKind]:
     the values far beyond) in every item column they answer (three or more), with a value no other row gives in
     its column.  Column by column on the rows still in question, so that large files cost little."""
     in_base = np.isfinite(base)
-    totals = np.where(in_base, base, 0.0).sum(axis=0)
-    counts = in_base.sum(axis=0)
-    rows = np.flatnonzero(np.isfinite(X).sum(axis=1) >= 3)
+    if base is X and in_base.all():  # no gaps and nothing set aside (the common case): the same sums, unmasked
+        totals, counts = X.sum(axis=0), np.full(X.shape[1], len(X))
+        rows = np.arange(len(X)) if X.shape[1] >= 3 else np.arange(0)
+    else:
+        totals = np.where(in_base, base, 0.0).sum(axis=0)
+        counts = in_base.sum(axis=0)
+        rows = np.flatnonzero(np.isfinite(X).sum(axis=1) >= 3)
     as_sum = np.ones(len(rows), dtype=bool)
     as_mean = np.ones(len(rows), dtype=bool)
     for j in range(X.shape[1]):

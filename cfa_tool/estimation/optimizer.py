@@ -100,7 +100,7 @@ def minimise(
     ``hessian`` the observed Hessian in closed form, when the objective has them.  A stalled search
     ends with :attr:`Outcome.STALLED` when ``stop_when_stalled``, and moves to the quasi-Newton
     method otherwise."""
-    theta = np.clip(np.asarray(start, dtype=float), lower, upper)
+    theta = np.minimum(np.maximum(np.asarray(start, dtype=float), lower), upper)
     initial = theta
     current = evaluate(theta)
     if current is None:

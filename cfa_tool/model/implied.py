@@ -33,16 +33,21 @@ class ModelMatrices:
     M: np.ndarray
 
     @cached_property
+    def has_paths(self) -> bool:
+        """Some factor loads on another (B is not zero): A, G and the factors' total covariances need B."""
+        return bool(self.B.any())
+
+    @cached_property
     def A(self) -> np.ndarray:
         m = self.B.shape[-1]
-        if not self.B.any():
+        if not self.has_paths:
             return np.eye(m)
         return np.linalg.inv(np.eye(m) - self.B)
 
     @cached_property
     def G(self) -> np.ndarray:
         """L A: the indicators' loadings on every factor, through higher-order paths too."""
-        return self.L if not self.B.any() else self.L @ self.A
+        return self.L if not self.has_paths else self.L @ self.A
 
     def latent_covariance(self) -> np.ndarray:
         """Total (co)variances of the factors: A P A' (read-only; computed once)."""
@@ -51,7 +56,7 @@ class ModelMatrices:
     @cached_property
     def _latent_covariance(self) -> np.ndarray:
         A = self.A
-        out = self.P.copy() if not self.B.any() else A @ self.P @ np.swapaxes(A, -1, -2)
+        out = self.P.copy() if not self.has_paths else A @ self.P @ np.swapaxes(A, -1, -2)
         out.setflags(write=False)
         return out
 

@@ -171,7 +171,7 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     """Start values for theta from a (pooled) covariance matrix, mean vector and (ordinal items) thresholds."""
     plan = table.derived("start plan", start_plan)
     m = len(table.latent)
-    sd = np.sqrt(np.clip(np.diag(S), 1e-12, None))
+    sd = np.sqrt(np.maximum(S.diagonal(), 1e-12))  # (np.clip costs several times more at this size)
     R = S / np.outer(sd, sd)
     std_loading = np.zeros((m, len(sd)))
     total_var = np.full(m, np.nan)
@@ -229,7 +229,7 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     target[e] = total_var[f] * np.where(plan.endogenous[f], 0.5, 1.0)
     e, a, b = plan.covariances
     if len(e):
-        r = np.clip((weights @ R @ weights.T)[a, b], -0.9, 0.9)
+        r = np.minimum(np.maximum((weights @ R @ weights.T)[a, b], -0.9), 0.9)
         if plan.pairs_with_items is not None:  # factors reached only through others (higher-order) start uncorrelated
             r = np.where(plan.pairs_with_items, r, 0.0)
         r = _positive_definite(r, a, b, m)
@@ -247,7 +247,7 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     theta = plan.solve @ (target - table.mapping()[1])
     if len(plan.given):
         theta[plan.given] = table.start[plan.given]
-    return np.clip(theta, table.lower, table.upper) if plan.bounded else theta
+    return np.minimum(np.maximum(theta, table.lower), table.upper) if plan.bounded else theta
 
 
 def _orientation(loadings: np.ndarray, raw: np.ndarray, rule: np.ndarray, position: np.ndarray,
@@ -297,10 +297,10 @@ def _principal_axes(R: np.ndarray) -> np.ndarray:
     except np.linalg.LinAlgError:
         smc = np.full(R.shape[:2], 0.5)
     n = R.shape[1]
-    reduced[:, np.arange(n), np.arange(n)] = np.clip(smc, 0.05, 0.95)
+    reduced[:, np.arange(n), np.arange(n)] = np.minimum(np.maximum(smc, 0.05), 0.95)
     vals, vecs = np.linalg.eigh(reduced)
     v = vecs[:, :, -1]
     sign = np.sign(v.sum(axis=1))
     v = v * np.where(sign == 0, 1.0, sign)[:, None]
     loadings = v * np.sqrt(np.maximum(vals[:, -1], 0.05))[:, None]
-    return np.copysign(np.clip(np.abs(loadings), 0.2, 0.95), loadings)
+    return np.copysign(np.minimum(np.maximum(np.abs(loadings), 0.2), 0.95), loadings)

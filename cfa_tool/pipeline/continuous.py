@@ -394,7 +394,7 @@ def _summary(m: SampleMoments, observed: tuple[str, ...], gm: GroupMoments) -> D
         rows = rows[:, [m.names.index(x) for x in observed]]
     shape = item_shape(rows) if rows is not None else None
     return DataSummary(m.source, m.rows_read, m.rows_dropped, m.n_obs, observed,
-                       tuple(float(v) for v in gm.mean), tuple(float(v) for v in np.sqrt(np.diag(gm.covariance))),
+                       tuple(gm.mean.tolist()), tuple(np.sqrt(np.diag(gm.covariance)).tolist()),
                        *((shape.answered, shape.skewness, shape.kurtosis) if shape is not None else ()))
 
 

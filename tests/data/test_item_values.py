@@ -28,7 +28,8 @@ def test_numbers_of_every_numeric_dtype_in_any_order():
     for names in (["q1", "q2", "q4", "q5"], ["q5", "q2", "q1"], ["q1", "q2", "q3", "q4", "q5"], ["q2", "q2"]):
         got = item_values(frame, names)
         np.testing.assert_array_equal(got, _expected(frame, names))
-        assert got.flags.c_contiguous and got.flags.writeable  # a fresh array the moments may work in
+        assert got.flags.owndata and got.flags.writeable  # a fresh array the moments may work in
+        assert got.flags.f_contiguous  # each column contiguous: the screening and the moments reduce over columns
         assert got.shape == (5, len(names))
 
 
@@ -56,3 +57,13 @@ def test_numeric_columns_of_numbers_is_the_same_array():
     frame = _frame()
     names = ("q3", "q1", "q4")
     np.testing.assert_array_equal(numeric_columns(frame, names, "survey.csv"), _expected(frame, names))
+
+
+def test_a_pandas_without_its_column_accessor_gives_the_same_array(monkeypatch):
+    """item_values reads pandas' stored column arrays where pandas has the accessor, and each column's public
+    array otherwise: both give pandas' own conversion."""
+    frame = _frame()
+    names = ["q5", "q2", "q1", "q4", "q3"]
+    monkeypatch.delattr(pd.DataFrame, "_get_column_array", raising=False)
+    np.testing.assert_array_equal(item_values(frame, names), _expected(frame, names))
+    assert item_values(frame, ["q1", "district"]) is None
