@@ -507,8 +507,9 @@ class SavedFit:
 
 
 def read_saved_fit(path) -> SavedFit:
-    """A fit's JSON result (``fit --json``), checked to be one."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    """A fit's JSON result (``fit --json``), checked to be one; its problems begin with those of its estimates
+    themselves (:func:`~cfa_tool.assessment.admissibility.estimate_row_problems`)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind, estimate_row_problems
     from cfa_tool.input_files import input_json
     from cfa_tool.pipeline.results import DataSummary
 
@@ -530,6 +531,8 @@ def read_saved_fit(path) -> SavedFit:
                               missing_codes=tuple(float(v) for v in d.get("missing_codes", ())))
         problems = tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
                                  q["advice"], q["group"]) for q in payload.get("problems", ()))
+        # the estimates themselves judged as a fresh fit is, whatever the file's flag and problems say
+        problems = estimate_row_problems(payload["estimates"]) + problems
         model = payload["model"]
     except (ValueError, KeyError, TypeError, AttributeError):
         raise OptionError(f"'{printable(str(path))}' is not the JSON result of a fit by cfa-tool (fit --json)") from None
@@ -659,8 +662,10 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     saved = read_saved_fit(saved_path)
     refuse_unknown_scale(saved.data, f"the fit in '{printable(str(saved_path))}'")
     if not saved.admissible:
-        raise EstimationError(f"the fit in '{printable(str(saved_path))}' is not admissible, so no factor scores are "
-                              f"computed with it")
+        first = next((p for p in saved.problems if p.kind.inadmissible), None)
+        why = f" (it has {first.phrase()})" if first is not None else ""
+        raise EstimationError(f"the fit in '{printable(str(saved_path))}' is not admissible{why}, so no factor scores "
+                              f"are computed with it")
     spec = api.load_spec(model)
     chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")))
     models, labels = models_of_saved_fit(spec, saved)

@@ -209,13 +209,19 @@ def fitted_estimates(fitted) -> tuple[list[dict], str, bool, bool, bool, dict]:
 def _population_from_fit(spec: Spec, fitted) -> Population:
     """Population values taken from an earlier fit of the same model: every free parameter's estimate, so
     reverse-keyed loadings, negative correlations and the observed residual variances carry over."""
+    from cfa_tool.assessment.admissibility import estimate_row_problems
+
     rows, source, admissible, grouped, ordinal, payload = fitted_estimates(fitted)
     if grouped:
         raise OptionError(f"{source}: the fit has groups; population values are taken from a fit of one group")
+    found = estimate_row_problems(rows)  # the estimates themselves, whatever the file's flag says
+    if found:
+        raise OptionError(f"{source}: the fitted solution is not admissible (its estimates have {found[0].phrase()}), "
+                          f"so it cannot serve as a population")
     if not admissible:
-        problems = fitted.get("problems", []) if isinstance(fitted, dict) else getattr(fitted, "problems", ())
+        problems = payload.get("problems", [])
         first = problems[0] if problems else None
-        what = (first.get("kind") if isinstance(first, dict) else first.kind.value) if first is not None else ""
+        what = first.get("kind") if isinstance(first, dict) else ""
         raise OptionError(f"{source}: the fitted solution is not admissible ({what or 'see its problems'}), so it "
                           f"cannot serve as a population")
     if spec.starts:
