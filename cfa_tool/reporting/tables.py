@@ -561,6 +561,12 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
             "to the factor (for a higher-order factor: omega hierarchical); omega total: due to all factors; alpha "
             "from the " + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
             + ("composite" if ordinal else "composite reliability") + " from the standardized loadings.")
+    single = [r.factor for r in rows if r.level == "first-order" and len(r.items) == 1]
+    if single:
+        note += (f" {', '.join(single)} {'has' if len(single) == 1 else 'have'} one item: with one indicator the "
+                 f"factor's share of the item's variance follows from the error variance fixed in the model, an "
+                 f"assumption rather than evidence, so no coefficients are shown and "
+                 f"{'it takes' if len(single) == 1 else 'they take'} no part in the Fornell-Larcker comparison.")
     methods = result.description.method_factors if result.description is not None else ()
     if methods:
         note += (f" Method factors ({', '.join(methods)}) stand for a way of answering, not a trait: they get no "
@@ -687,6 +693,8 @@ def item_table(result) -> ReportTable:
         for r in result.groups[0].reliability:
             for item, value in zip(r.items, r.item_total):
                 rest.setdefault(item, (r.factor, value, item in r.reversed))
+            if r.level == "first-order" and len(r.items) == 1:  # a one-item factor: no item-rest correlation
+                rest.setdefault(r.items[0], (r.factor, float("nan"), r.items[0] in r.reversed))
     shape = bool(d.skewness)
     # SDs with divisor N - 1, as descriptive tables report them (the model uses divisor N)
     stretch = (d.n_obs / (d.n_obs - 1)) ** 0.5 if d.n_obs > 1 else 1.0
