@@ -38,6 +38,14 @@ from cfa_tool.options import MAX_OBSERVATIONS
 
 
 
+class AnalysedMatrix(Enum):
+    """Which published matrix a fit of summary statistics analysed, in the words of a methods paragraph."""
+
+    COVARIANCE = "a covariance matrix"
+    CORRELATION_WITH_SDS = "a correlation matrix and standard deviations (covariances rebuilt from them)"
+    CORRELATION = "a correlation matrix without standard deviations"
+
+
 class NotGiven(Enum):
     """What a summary-statistics file may leave out, so that a fit of it knows nothing of it: without means the
     item means are taken as 0, and a correlation matrix without standard deviations is fitted in standard-deviation
@@ -270,4 +278,7 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
         raise DataError(f"{source}: the matrix is not positive definite")
     not_given = ((NotGiven.MEANS,) if means is None else ()) + (
         (NotGiven.STANDARD_DEVIATIONS,) if kind == "correlation" and sds is None else ())
-    return SampleMoments(tuple(names), matrix, mean, int(n_obs), int(n_obs), 0, source, not_given=not_given), notes
+    analysed = (AnalysedMatrix.COVARIANCE if kind != "correlation" else AnalysedMatrix.CORRELATION_WITH_SDS
+                if sds is not None else AnalysedMatrix.CORRELATION)
+    return SampleMoments(tuple(names), matrix, mean, int(n_obs), int(n_obs), 0, source, not_given=not_given,
+                         analysed=analysed), notes

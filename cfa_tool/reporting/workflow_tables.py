@@ -863,7 +863,8 @@ def check_report(found) -> Report:
     notice = T.problem_notice(found)
     if notice is not None:
         notice = ProblemNotice(T.DATA_CAUTION, notice.lines, False)
-    return Report(ResultKind.CHECK, "Model check", notice, tuple(lines), (table,))
+    # summary statistics hold no rows, so no share of rows answering
+    return Report(ResultKind.CHECK, "Model check", notice, tuple(lines), (table,) if found.coverage else ())
 
 
 BUILDERS = {ResultKind.COMPARE: comparison_report, ResultKind.INVARIANCE: invariance_report,

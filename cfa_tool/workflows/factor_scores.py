@@ -520,7 +520,7 @@ def read_saved_fit(path) -> SavedFit:
         d = payload["data"]
         counts = d.get("category_counts") or {}
         categories = tuple(tuple((float(c["value"]), int(c["rows"])) for c in counts.get(x, ())) for x in d["variables"])
-        means = tuple(float(v) for v in d["means"])
+        means = tuple(float(v) for v in d["means"]) if d["means"] is not None else (0.0,) * len(d["variables"])
         not_given = tuple(NotGiven(v) for v in d.get("not_given", ()))
         if "not_given" not in d and not any(e.get("kind") == "intercept" for e in payload["estimates"]) \
                 and not any(means) and not counts:
