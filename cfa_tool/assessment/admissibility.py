@@ -301,6 +301,24 @@ def _real(value) -> bool:
     return isinstance(value, (int, float)) and not isinstance(value, bool) and bool(np.isfinite(value))
 
 
+def estimate_not_a_number(rows: list) -> str | None:
+    """The first estimate row of a saved result whose estimate is written as something other than a number (text such
+    as "0.8", true/false, a list), as 'loading(f1, x1) is "0.8"'; None when every estimate is a number or empty."""
+    import json
+
+    for row in rows if isinstance(rows, list) else ():
+        if not isinstance(row, dict):
+            continue
+        value = row.get("estimate")
+        if value is None or _real(value) or (isinstance(value, float) and not isinstance(value, bool)):
+            continue
+        names = row.get("variables") if isinstance(row.get("variables"), list) else []
+        label = f"{row.get('kind')}({', '.join(str(v) for v in names)})"
+        shown = json.dumps(value)
+        return f"{label} is {shown if len(shown) <= 30 else shown[:27] + '...'}"
+    return None
+
+
 def estimate_row_problems(rows: list) -> tuple[Problem, ...]:
     """The inadmissible problems of a saved result's estimates themselves (the rows of a ``--json`` file's
     'estimates': kind, variables, group, estimate), whatever its 'admissible' flag says: each group's

@@ -137,6 +137,10 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
     if len(set(names)) != len(names):
         dup = next(n for n in names if names.count(n) > 1)
         raise DataError(f"{path}:{first_line}: the variable '{printable(dup)}' is named twice")
+    taken = [n for n in names if n.lower() in EXTRA_ROWS]
+    if taken:
+        raise DataError(f"{path}:{first_line}: a variable is named '{printable(taken[0])}', which is also the label of "
+                        f"a row after the matrix ({', '.join(EXTRA_ROWS)}); rename it, in this file and in the model")
     p = len(names)
     rows: list[tuple[list[float], int]] = []
     extra: dict[str, tuple[list[str], int]] = {}
@@ -150,6 +154,10 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
                                 f"{extra[label.lower()][1]})")
             extra[label.lower()] = (cells[1:], number_)
             continue
+        if extra and label not in names:
+            meant = label.lower().rstrip("s")
+            raise DataError(f"{where}: unknown row '{printable(label)}' (after the matrix come only the rows "
+                            f"{', '.join(EXTRA_ROWS)})" + (f"; write '{meant}'" if meant in EXTRA_ROWS else ""))
         if extra:
             raise DataError(f"{where}: matrix rows come before the n, sd, mean and divisor rows")
         if len(rows) >= p:
@@ -185,7 +193,22 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
             cells = [c.replace(",", ".") for c in cells]
         return np.array(_numbers(cells, f"{path}:{line}"))
 
+    if "sd" in extra and kind != "correlation":
+        raise DataError(f"{path}:{extra['sd'][1]}: an 'sd' row turns a correlation matrix into covariances, but the "
+                        f"first cell (line {first_line}) declares a covariance matrix; if the matrix holds "
+                        f"correlations, write 'correlation' there, and otherwise remove the 'sd' row")
+    sds = vector("sd")
+    if sds is not None and len(sds) == p and not np.all(np.isfinite(sds) & (sds > 0)):
+        j = int(np.flatnonzero(~(np.isfinite(sds) & (sds > 0)))[0])
+        raise DataError(f"{path}:{extra['sd'][1]}: the standard deviation of '{printable(names[j])}' is {sds[j]:g}; "
+                        f"standard deviations must be positive")
     matrix = _assemble(rows, p, str(path))
+    if kind == "correlation":
+        beyond = np.argwhere(np.tril(np.abs(matrix) > 1.0 + 1e-9, -1))
+        if len(beyond):
+            i, j = beyond[0]
+            raise DataError(f"{path}:{rows[i][1]}: the correlation of '{printable(names[i])}' and "
+                            f"'{printable(names[j])}' is {matrix[i, j]:g}, beyond +/-1; check it for a typing error")
     return summary_moments(names, matrix, n_obs, kind, vector("sd"), vector("mean"), divisor, str(path))
 
 
@@ -193,6 +216,10 @@ def _assemble(rows: list[tuple[list[float], int]], p: int, source: str) -> np.nd
     if len(rows) != p:
         raise DataError(f"{source}: the matrix has {len(rows)} rows for {p} variables")
     full = all(len(r) == p for r, _ in rows)
+    if p > 1 and [len(r) for r, _ in rows] == list(range(p, 0, -1)):
+        raise DataError(f"{source}:{rows[0][1]}: the matrix is an upper triangle (row 1 has {p} numbers, the last row "
+                        f"1), which is not read; write the lower triangle (row k holds k numbers, ending with the "
+                        f"diagonal) or the full matrix")
     out = np.zeros((p, p))
     for i, (values, line) in enumerate(rows):
         if full:
@@ -242,12 +269,15 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
     n_obs = check.observations(n_obs)
     if sds is not None and kind != "correlation":
         raise DataError(f"{source}: standard deviations turn a correlation matrix into covariances, and this matrix is "
-                        f"declared a covariance matrix; if it holds correlations, declare it so (matrix: correlation)")
+                        f"declared a covariance matrix; if it holds correlations, declare it so (matrix='correlation')")
     if sds is not None:
         sds = _number_array(sds, source, "the standard deviations").ravel()
-        if len(sds) != p or not np.all(np.isfinite(sds)) or np.any(sds <= 0):
-            raise DataError(f"{source}: give {p} positive standard deviations, one per variable "
-                            f"({len(sds)} given{', not all positive' if len(sds) == p else ''})")
+        if len(sds) == p and not np.all(np.isfinite(sds) & (sds > 0)):
+            j = int(np.flatnonzero(~(np.isfinite(sds) & (sds > 0)))[0])
+            raise DataError(f"{source}: the standard deviation of '{printable(names[j])}' is {sds[j]:g}; standard "
+                            f"deviations must be positive")
+        if len(sds) != p:
+            raise DataError(f"{source}: give {p} positive standard deviations, one per variable ({len(sds)} given)")
     if means is not None:
         means = _number_array(means, source, "the means").ravel()
         if len(means) != p or not np.all(np.isfinite(means)):
@@ -262,6 +292,11 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
         raise DataError(f"{source}: {n_obs} observations for {p} variables; the analysis needs more observations than variables")
     notes = []
     if kind == "correlation":
+        beyond = np.argwhere(np.tril(np.abs(matrix) > 1.0 + 1e-9, -1))
+        if len(beyond):
+            i, j = beyond[0]
+            raise DataError(f"{source}: the correlation of '{printable(names[i])}' and '{printable(names[j])}' (row "
+                            f"{i + 1} of the matrix) is {matrix[i, j]:g}, beyond +/-1; check it for a typing error")
         if not np.allclose(np.diag(matrix), 1.0, atol=1e-6):
             raise DataError(f"{source}: a correlation matrix needs ones on its diagonal")
         if sds is not None:

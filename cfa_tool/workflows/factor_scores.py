@@ -509,11 +509,15 @@ class SavedFit:
 def read_saved_fit(path) -> SavedFit:
     """A fit's JSON result (``fit --json``), checked to be one; its problems begin with those of its estimates
     themselves (:func:`~cfa_tool.assessment.admissibility.estimate_row_problems`)."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind, estimate_row_problems
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind, estimate_not_a_number, estimate_row_problems
     from cfa_tool.input_files import input_json
     from cfa_tool.pipeline.results import DataSummary
 
     payload = input_json(Path(path), "fit result", OptionError)
+    text = estimate_not_a_number(payload.get("estimates")) if isinstance(payload, dict) else None
+    if text is not None:
+        raise OptionError(f"'{printable(str(path))}': the estimate of {text}, not a number; write numbers without "
+                          f"quotes, or fit the model again rather than edit its result")
     try:
         if payload.get("tool") != "cfa-tool" or "estimates" not in payload:
             raise ValueError

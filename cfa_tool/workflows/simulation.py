@@ -231,9 +231,13 @@ def fitted_estimates(fitted) -> tuple[list[dict], str, bool, bool, bool, dict]:
 def _population_from_fit(spec: Spec, fitted) -> Population:
     """Population values taken from an earlier fit of the same model: every free parameter's estimate, so
     reverse-keyed loadings, negative correlations and the observed residual variances carry over."""
-    from cfa_tool.assessment.admissibility import estimate_row_problems
+    from cfa_tool.assessment.admissibility import estimate_not_a_number, estimate_row_problems
 
     rows, source, admissible, grouped, ordinal, payload = fitted_estimates(fitted)
+    text = estimate_not_a_number(rows)
+    if text is not None:
+        raise OptionError(f"{source}: the estimate of {text}, not a number; write numbers without quotes, or fit the "
+                          f"model again rather than edit its result")
     if grouped:
         raise OptionError(f"{source}: the fit has groups; population values are taken from a fit of one group")
     found = estimate_row_problems(rows)  # the estimates themselves, whatever the file's flag says

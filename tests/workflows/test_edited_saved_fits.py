@@ -104,3 +104,19 @@ def test_the_report_of_an_edited_fit_shows_the_problem_first(tmp_path, hs_data, 
                                                                         "(-0.010)") < words.index("Model file:")
     code, out, _ = _run(["report", fitted], capsys)
     assert code == 0 and "not admissible" not in out
+
+
+def test_an_estimate_written_as_text_is_named(tmp_path, saved, capsys):
+    # hostile trial: a loading typed as "0.8" was called 'the result of another model' (scores) and read as 0.8
+    # without a word (simulate)
+    model = tmp_path / "hs.cfa"
+    model.write_text(THREE_FACTORS)
+    edited = tmp_path / "text.json"
+    edited.write_text(json.dumps(_edited(saved, "loading", ["visual", "x2"], "0.8")))
+    code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", edited, "--output", tmp_path / "s.csv"],
+                        capsys)
+    assert code == 2 and 'the estimate of loading(visual, x2) is "0.8", not a number' in err
+    code, _, err = _run(["simulate", model, "--n", 20, "--output", tmp_path / "r.csv", "--population-from", edited],
+                        capsys)
+    assert code == 2 and 'the estimate of loading(visual, x2) is "0.8", not a number' in err
+    assert not (tmp_path / "s.csv").exists() and not (tmp_path / "r.csv").exists()
