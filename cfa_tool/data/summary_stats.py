@@ -197,19 +197,9 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
         raise DataError(f"{path}:{extra['sd'][1]}: an 'sd' row turns a correlation matrix into covariances, but the "
                         f"first cell (line {first_line}) declares a covariance matrix; if the matrix holds "
                         f"correlations, write 'correlation' there, and otherwise remove the 'sd' row")
-    sds = vector("sd")
-    if sds is not None and len(sds) == p and not np.all(np.isfinite(sds) & (sds > 0)):
-        j = int(np.flatnonzero(~(np.isfinite(sds) & (sds > 0)))[0])
-        raise DataError(f"{path}:{extra['sd'][1]}: the standard deviation of '{printable(names[j])}' is {sds[j]:g}; "
-                        f"standard deviations must be positive")
     matrix = _assemble(rows, p, str(path))
-    if kind == "correlation":
-        beyond = np.argwhere(np.tril(np.abs(matrix) > 1.0 + 1e-9, -1))
-        if len(beyond):
-            i, j = beyond[0]
-            raise DataError(f"{path}:{rows[i][1]}: the correlation of '{printable(names[i])}' and "
-                            f"'{printable(names[j])}' is {matrix[i, j]:g}, beyond +/-1; check it for a typing error")
-    return summary_moments(names, matrix, n_obs, kind, vector("sd"), vector("mean"), divisor, str(path))
+    return summary_moments(names, matrix, n_obs, kind, vector("sd"), vector("mean"), divisor, str(path),
+                           tuple(line for _, line in rows), extra["sd"][1] if "sd" in extra else None)
 
 
 def _assemble(rows: list[tuple[list[float], int]], p: int, source: str) -> np.ndarray:
@@ -246,8 +236,10 @@ def _number_array(values, source: str, what: str) -> np.ndarray:
 
 def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str = "covariance",
                     sds: np.ndarray | None = None, means: np.ndarray | None = None, divisor: str = "n-1",
-                    source: str = "<summary statistics>") -> tuple[SampleMoments, list[str]]:
-    """Moments (divisor N) from a published matrix; notes say what was assumed."""
+                    source: str = "<summary statistics>", row_lines: tuple[int, ...] | None = None,
+                    sd_line: int | None = None) -> tuple[SampleMoments, list[str]]:
+    """Moments (divisor N) from a published matrix; notes say what was assumed.  ``row_lines`` and ``sd_line``: the
+    lines of a file's matrix rows and of its sd row, for messages that name them."""
     p = len(names)
     matrix = _number_array(matrix, source, "the matrix")
     if matrix.ndim != 2 or matrix.shape != (p, p):
@@ -274,7 +266,8 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
         sds = _number_array(sds, source, "the standard deviations").ravel()
         if len(sds) == p and not np.all(np.isfinite(sds) & (sds > 0)):
             j = int(np.flatnonzero(~(np.isfinite(sds) & (sds > 0)))[0])
-            raise DataError(f"{source}: the standard deviation of '{printable(names[j])}' is {sds[j]:g}; standard "
+            where = f"{source}:{sd_line}" if sd_line is not None else source
+            raise DataError(f"{where}: the standard deviation of '{printable(names[j])}' is {sds[j]:g}; standard "
                             f"deviations must be positive")
         if len(sds) != p:
             raise DataError(f"{source}: give {p} positive standard deviations, one per variable ({len(sds)} given)")
@@ -295,8 +288,9 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
         beyond = np.argwhere(np.tril(np.abs(matrix) > 1.0 + 1e-9, -1))
         if len(beyond):
             i, j = beyond[0]
-            raise DataError(f"{source}: the correlation of '{printable(names[i])}' and '{printable(names[j])}' (row "
-                            f"{i + 1} of the matrix) is {matrix[i, j]:g}, beyond +/-1; check it for a typing error")
+            where = f"{source}:{row_lines[i]}" if row_lines is not None else f"{source} (row {i + 1} of the matrix)"
+            raise DataError(f"{where}: the correlation of '{printable(names[i])}' and '{printable(names[j])}' is "
+                            f"{matrix[i, j]:g}, beyond +/-1; check it for a typing error")
         if not np.allclose(np.diag(matrix), 1.0, atol=1e-6):
             raise DataError(f"{source}: a correlation matrix needs ones on its diagonal")
         if sds is not None:
