@@ -359,33 +359,45 @@ def _correlation(value: float) -> str:
     return f"{value:.2f}".replace("0.", ".", 1)
 
 
+def _values(how: str) -> str:
+    return "fixed values" if how == "fixed at" else "start values"
+
+
 def impossible_fixed_values(table: ParameterTable, source: str) -> None:
-    """An error (the model file is the bad input) when the values the model fixes cannot belong to any population:
-    a variance fixed below zero, or fixed covariances whose correlations (with variances fixed too) lie beyond
-    +/-1 or cannot hold together (their correlation matrix is not positive definite).  A covariance matrix is
-    positive semi-definite, so each of its variances is at least 0, each correlation within +/-1, and so is every
-    principal submatrix (Horn & Johnson 2013, Observation 7.1.2)."""
-    fixed = {(par.kind, par.variables): par for par in table.parameters if not par.free and par.group == 0}
-    for par in fixed.values():
-        if par.kind in ("factor_variance", "residual_variance") and par.offset < 0:
-            raise ModelError(f"{source}: the fixed values make the population covariance matrix impossible: "
-                             f"{_as_written(par)} is fixed at {par.offset:g}, and a variance cannot be negative")
-    for kind, names in (("factor", table.latent), ("residual", table.observed)):
-        variance = {x: fixed[(f"{kind}_variance", (x,))].offset for x in names if (f"{kind}_variance", (x,)) in fixed}
-        pairs = {}
-        for (k, variables), par in fixed.items():
-            a, b = variables[0], variables[-1]
-            if k == f"{kind}_covariance" and par.origin == "user" and a in variance and b in variance:
-                pairs[frozenset((a, b))] = par
-        if not pairs:
+    """An error (the model file is the bad input) when the values the model file gives ('fix' and 'start'
+    statements, and the values that set each factor's scale) cannot belong to any population: a variance below
+    zero, or covariances whose correlations (with both variances given too) lie beyond +/-1 or cannot hold together
+    (their correlation matrix is not positive definite).  A covariance matrix is positive semi-definite, so each
+    of its variances is at least 0, each correlation within +/-1, and so is every principal submatrix (Horn &
+    Johnson 2013, Observation 7.1.2)."""
+    given: dict[tuple, tuple[float, str, object]] = {}  # (kind, variables) -> (value, how it was given, parameter)
+    for par in table.parameters:
+        if par.group != 0:
             continue
-        for pair, par in pairs.items():
+        if not par.free:
+            given[(par.kind, par.variables)] = (par.offset, "fixed at", par)
+        elif len(par.terms) == 1 and not np.isnan(table.start[par.terms[0][0]]):  # a 'start' statement
+            index, coefficient = par.terms[0]
+            value = par.offset + coefficient * table.start[index]
+            given[(par.kind, par.variables)] = (value, "given the start value", par)
+    for value, how, par in given.values():
+        if par.kind in ("factor_variance", "residual_variance") and value < 0:
+            raise ModelError(f"{source}: the {_values(how)} make the population covariance matrix impossible: "
+                             f"{_as_written(par)} is {how} {value:g}, and a variance cannot be negative")
+    for kind, names in (("factor", table.latent), ("residual", table.observed)):
+        variance = {x: given[(f"{kind}_variance", (x,))][0] for x in names if (f"{kind}_variance", (x,)) in given}
+        pairs = {}
+        for (k, variables), (value, how, par) in given.items():
+            a, b = variables[0], variables[-1]
+            if k == f"{kind}_covariance" and a in variance and b in variance:
+                pairs[frozenset((a, b))] = (value, how, par)
+        for value, how, par in pairs.values():
             a, b = par.variables
-            if variance[a] == 0 or variance[b] == 0 or abs(par.offset) > np.sqrt(variance[a] * variance[b]):
-                raise ModelError(f"{source}: the fixed values make the population covariance matrix impossible: "
-                                 f"{_as_written(par)} is fixed at {par.offset:g}, beyond what the variances of {a} "
-                                 f"and {b} allow (a correlation beyond +/-1)")
-        # the largest set of these variables whose covariances are all fixed: it must be positive definite
+            if variance[a] == 0 or variance[b] == 0 or abs(value) > np.sqrt(variance[a] * variance[b]):
+                raise ModelError(f"{source}: the {_values(how)} make the population covariance matrix impossible: "
+                                 f"{_as_written(par)} is {how} {value:g}, beyond what the variances of {a} and {b} "
+                                 f"allow (a correlation beyond +/-1)")
+        # the largest set of these variables whose covariances are all given: it must be positive definite
         members = sorted({x for pair in pairs for x in pair}, key=list(names).index)
         while len(members) > 2:
             lacking = [sum(frozenset((x, y)) not in pairs for y in members if y != x) for x in members]
@@ -398,13 +410,15 @@ def impossible_fixed_values(table: ParameterTable, source: str) -> None:
         corr = np.eye(len(members))
         for i in range(len(members)):
             for j in range(i):
-                corr[i, j] = corr[j, i] = pairs[frozenset((members[i], members[j]))].offset / (sd[i] * sd[j])
+                corr[i, j] = corr[j, i] = pairs[frozenset((members[i], members[j]))][0] / (sd[i] * sd[j])
         if np.linalg.eigvalsh(corr)[0] <= 0:
             values = [_correlation(corr[i, j]) for i in range(len(members)) for j in range(i)]
             what = "factor correlations" if kind == "factor" else "residual correlations"
-            raise ModelError(f"{source}: the {what} fixed at {', '.join(values[:-1])} and {values[-1]} "
+            hows = {pairs[frozenset((members[i], members[j]))][1] for i in range(len(members)) for j in range(i)}
+            how = "fixed at" if hows == {"fixed at"} else "given as"
+            raise ModelError(f"{source}: the {what} {how} {', '.join(values[:-1])} and {values[-1]} "
                              f"({', '.join(members)}) cannot hold together (their matrix is not positive definite), so "
-                             f"no population has them; change the fixed values")
+                             f"no population has them; change the values")
 
 
 def population_from_spec(spec: Spec, fitted=None) -> Population:

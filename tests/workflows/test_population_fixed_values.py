@@ -33,6 +33,12 @@ THREE = "factor f1: a1, a2, a3\nfactor f2: b1, b2, b3\nfactor f3: c1, c2, c3\nsc
      "the factor correlations fixed at .95, -.95 and .95 (f1, f2, f3) cannot hold together (their matrix is not "
      "positive definite)"),
     (THREE + "fix covariance(f1, f2) = 1.2\n", "covariance(f1, f2) is fixed at 1.2, beyond what the variances"),
+    # the same with 'start' values (a negative one was simulated without a word; a correlation of 1.5 was said to be
+    # a model that 'may not be identified')
+    ("factor f1: a1, a2, a3\nstart variance(a2) = -0.01\n",
+     "the start values make the population covariance matrix impossible: variance(a2) is given the start value -0.01"),
+    (THREE + "start covariance(f1, f2) = 1.5\n", "covariance(f1, f2) is given the start value 1.5, beyond what the "
+                                                 "variances of f1 and f2 allow"),
 ])
 def test_impossible_fixed_values_are_one_line_naming_them(tmp_path, capsys, command, text, words):
     model = tmp_path / "m.cfa"
