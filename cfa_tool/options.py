@@ -106,5 +106,6 @@ def sample_sizes(value: object, name: str = "the sample size") -> tuple[int, ...
     if not sizes:
         raise OptionError(f"{name}: give at least one")
     if len(set(sizes)) < len(sizes):
-        raise OptionError(f"{name}: {_shown(value)} names a sample size twice")
+        twice = next(s for s in sizes if sizes.count(s) > 1)
+        raise OptionError(f"{name} {twice} is given twice; give each sample size once")
     return sizes

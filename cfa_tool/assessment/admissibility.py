@@ -320,3 +320,72 @@ def _labels_of(table: ParameterTable) -> _Labels:
                 suffix = f" [{table.groups[par.group]}]" if table.multigroup else ""
                 labels[index] = par.label + suffix
     return _Labels(tuple(tuple(s) for s in single), tuple(labels))
+
+
+_MATRIX_KINDS = ("loading", "factor_variance", "factor_covariance", "residual_variance", "residual_covariance")
+
+
+def _real(value) -> bool:
+    return isinstance(value, (int, float)) and not isinstance(value, bool) and bool(np.isfinite(value))
+
+
+def estimate_not_a_number(rows: list) -> str | None:
+    """The first estimate row of a saved result whose estimate is written as something other than a number (text such
+    as "0.8", true/false, a list), as 'loading(f1, x1) is "0.8"'; None when every estimate is a number or empty."""
+    import json
+
+    for row in rows if isinstance(rows, list) else ():
+        if not isinstance(row, dict):
+            continue
+        value = row.get("estimate")
+        if value is None or _real(value) or (isinstance(value, float) and not isinstance(value, bool)):
+            continue
+        names = row.get("variables") if isinstance(row.get("variables"), list) else []
+        label = f"{row.get('kind')}({', '.join(str(v) for v in names)})"
+        shown = json.dumps(value)
+        return f"{label} is {shown if len(shown) <= 30 else shown[:27] + '...'}"
+    return None
+
+
+def estimate_row_problems(rows: list) -> tuple[Problem, ...]:
+    """The inadmissible problems of a saved result's estimates themselves (the rows of a ``--json`` file's
+    'estimates': kind, variables, group, estimate), whatever its 'admissible' flag says: each group's
+    matrices are rebuilt from the rows and judged by :func:`matrix_problems`, the rule a fresh fit is judged
+    by (negative variances, correlations beyond +/-1, covariance matrices not positive definite).  Rows that
+    are not of a loading, variance or covariance, or whose estimate is not a number, are left to the reader."""
+    groups: dict = {}
+    for row in rows if isinstance(rows, list) else ():
+        if not isinstance(row, dict) or row.get("kind") not in _MATRIX_KINDS or not _real(row.get("estimate")):
+            continue
+        names = row.get("variables")
+        if not isinstance(names, list) or len(names) not in (1, 2) or not all(isinstance(v, str) for v in names):
+            continue
+        groups.setdefault(row.get("group") if isinstance(row.get("group"), str) else None, []).append(
+            (row["kind"], names[0], names[-1], float(row["estimate"])))
+    out: list[Problem] = []
+    for group, entries in groups.items():
+        latent = tuple(dict.fromkeys(a for k, a, _, _ in entries if k in ("loading", "factor_variance",
+                                                                            "factor_covariance")))
+        observed = tuple(dict.fromkeys(b for k, a, b, _ in entries if k == "loading" and b not in latent))
+        observed += tuple(x for x in dict.fromkeys(a for k, a, _, _ in entries if k.startswith("residual"))
+                          if x not in observed and x not in latent)
+        if not observed or not latent:
+            continue
+        obs, lat = {x: i for i, x in enumerate(observed)}, {f: j for j, f in enumerate(latent)}
+        p, m = len(observed), len(latent)
+        L, B, P, T = np.zeros((p, m)), np.zeros((m, m)), np.zeros((m, m)), np.zeros((p, p))
+        for kind, a, b, value in entries:
+            if kind == "loading":
+                if b in lat:
+                    B[lat[b], lat[a]] = value
+                else:
+                    L[obs[b], lat[a]] = value
+            elif kind.startswith("factor") and a in lat and b in lat:
+                P[lat[a], lat[b]] = P[lat[b], lat[a]] = value
+            elif kind.startswith("residual") and a in obs and b in obs:
+                T[obs[a], obs[b]] = T[obs[b], obs[a]] = value
+        mats = ModelMatrices(L, B, P, T, np.zeros(p), np.zeros(m))
+        with np.errstate(all="ignore"):
+            found = matrix_problems(mats, observed, latent, group)
+        out.extend(q for q in found if q.kind.inadmissible)
+    return tuple(out)

@@ -20,6 +20,8 @@ covariance, Theta the residual covariances and k the keys:
   residual variances e: (sum k l)^2 / ((sum k l)^2 + sum e);
 * average variance extracted: sum l^2 / (sum l^2 + sum e) (Fornell & Larcker 1981), which keys do
   not change, and the Fornell-Larcker comparison sqrt(AVE) > |r| with every other factor;
+* a factor with one item of its own gets none of these: with one indicator the factor's share of the item's
+  variance is whatever its fixed error variance makes it (Bollen 1989, ch. 7), an assumption, not evidence;
 * Cronbach's (1951) alpha from the sample covariances of the keyed items:
   n / (n - 1) (1 - sum s_ii / k'S k);
 * the keyed sum score's mean (a reversed answer x counting as minimum + maximum - x, which needs the
@@ -213,6 +215,11 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
             if sum_scores and means is not None:
                 mean = _sum_score_mean(means[own_items], own_k, [observed[i] for i in own_items], declared)
         largest = holds = None
+        if counts[j] == 1:  # one item: its coefficients only restate the error variance the model had to fix
+            results.append(FactorReliability(name, names, "first-order", float("nan"), float("nan"), None, None, None,
+                                             None, None, None, reversed_items, keying, mean, sd, item_total,
+                                             against_items))
+            continue
         others = [k for k in first_order if k != j]
         if others:
             largest = float(np.abs(corr_lat[j, others]).max())

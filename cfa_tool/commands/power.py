@@ -33,6 +33,11 @@ def run(args: argparse.Namespace) -> int:
         spec = read_model_file(args.model)
         df, variables = model_degrees_of_freedom(spec)
         ordinal = bool(spec.ordinal)
+        if df < 1:
+            state = ("just identified: it reproduces every variance and covariance exactly" if df == 0 else
+                     "more free parameters than variances and covariances: not identified")
+            raise OptionError(f"{args.model} has {df} degrees of freedom ({state}), so no RMSEA test of its fit exists "
+                              f"and there is no power to compute")
     if df is None:
         raise OptionError("give a model file or --df")
     return emit(args, plan(df, args.test, args.n, args.alpha, args.target, variables=variables, ordinal=ordinal))

@@ -33,6 +33,8 @@ class SampleMoments:
     design: object | None = field(default=None, repr=False, compare=False)  # data.sample_design.RowDesign of the rows
     #: what summary statistics left out (data.summary_stats.NotGiven): the fit then knows no item means or no units
     not_given: tuple = field(default=(), compare=False)
+    #: summary statistics: which matrix was given (data.summary_stats.AnalysedMatrix); None for rows of answers
+    analysed: object | None = field(default=None, compare=False)
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:

@@ -38,6 +38,14 @@ from cfa_tool.options import MAX_OBSERVATIONS
 
 
 
+class AnalysedMatrix(Enum):
+    """Which published matrix a fit of summary statistics analysed, in the words of a methods paragraph."""
+
+    COVARIANCE = "a covariance matrix"
+    CORRELATION_WITH_SDS = "a correlation matrix and standard deviations (covariances rebuilt from them)"
+    CORRELATION = "a correlation matrix without standard deviations"
+
+
 class NotGiven(Enum):
     """What a summary-statistics file may leave out, so that a fit of it knows nothing of it: without means the
     item means are taken as 0, and a correlation matrix without standard deviations is fitted in standard-deviation
@@ -129,6 +137,10 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
     if len(set(names)) != len(names):
         dup = next(n for n in names if names.count(n) > 1)
         raise DataError(f"{path}:{first_line}: the variable '{printable(dup)}' is named twice")
+    taken = [n for n in names if n.lower() in EXTRA_ROWS]
+    if taken:
+        raise DataError(f"{path}:{first_line}: a variable is named '{printable(taken[0])}', which is also the label of "
+                        f"a row after the matrix ({', '.join(EXTRA_ROWS)}); rename it, in this file and in the model")
     p = len(names)
     rows: list[tuple[list[float], int]] = []
     extra: dict[str, tuple[list[str], int]] = {}
@@ -142,6 +154,10 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
                                 f"{extra[label.lower()][1]})")
             extra[label.lower()] = (cells[1:], number_)
             continue
+        if extra and label not in names:
+            meant = label.lower().rstrip("s")
+            raise DataError(f"{where}: unknown row '{printable(label)}' (after the matrix come only the rows "
+                            f"{', '.join(EXTRA_ROWS)})" + (f"; write '{meant}'" if meant in EXTRA_ROWS else ""))
         if extra:
             raise DataError(f"{where}: matrix rows come before the n, sd, mean and divisor rows")
         if len(rows) >= p:
@@ -177,14 +193,23 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
             cells = [c.replace(",", ".") for c in cells]
         return np.array(_numbers(cells, f"{path}:{line}"))
 
+    if "sd" in extra and kind != "correlation":
+        raise DataError(f"{path}:{extra['sd'][1]}: an 'sd' row turns a correlation matrix into covariances, but the "
+                        f"first cell (line {first_line}) declares a covariance matrix; if the matrix holds "
+                        f"correlations, write 'correlation' there, and otherwise remove the 'sd' row")
     matrix = _assemble(rows, p, str(path))
-    return summary_moments(names, matrix, n_obs, kind, vector("sd"), vector("mean"), divisor, str(path))
+    return summary_moments(names, matrix, n_obs, kind, vector("sd"), vector("mean"), divisor, str(path),
+                           tuple(line for _, line in rows), extra["sd"][1] if "sd" in extra else None)
 
 
 def _assemble(rows: list[tuple[list[float], int]], p: int, source: str) -> np.ndarray:
     if len(rows) != p:
         raise DataError(f"{source}: the matrix has {len(rows)} rows for {p} variables")
     full = all(len(r) == p for r, _ in rows)
+    if p > 1 and [len(r) for r, _ in rows] == list(range(p, 0, -1)):
+        raise DataError(f"{source}:{rows[0][1]}: the matrix is an upper triangle (row 1 has {p} numbers, the last row "
+                        f"1), which is not read; write the lower triangle (row k holds k numbers, ending with the "
+                        f"diagonal) or the full matrix")
     out = np.zeros((p, p))
     for i, (values, line) in enumerate(rows):
         if full:
@@ -211,8 +236,10 @@ def _number_array(values, source: str, what: str) -> np.ndarray:
 
 def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str = "covariance",
                     sds: np.ndarray | None = None, means: np.ndarray | None = None, divisor: str = "n-1",
-                    source: str = "<summary statistics>") -> tuple[SampleMoments, list[str]]:
-    """Moments (divisor N) from a published matrix; notes say what was assumed."""
+                    source: str = "<summary statistics>", row_lines: tuple[int, ...] | None = None,
+                    sd_line: int | None = None) -> tuple[SampleMoments, list[str]]:
+    """Moments (divisor N) from a published matrix; notes say what was assumed.  ``row_lines`` and ``sd_line``: the
+    lines of a file's matrix rows and of its sd row, for messages that name them."""
     p = len(names)
     matrix = _number_array(matrix, source, "the matrix")
     if matrix.ndim != 2 or matrix.shape != (p, p):
@@ -234,12 +261,16 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
     n_obs = check.observations(n_obs)
     if sds is not None and kind != "correlation":
         raise DataError(f"{source}: standard deviations turn a correlation matrix into covariances, and this matrix is "
-                        f"declared a covariance matrix; if it holds correlations, declare it so (matrix: correlation)")
+                        f"declared a covariance matrix; if it holds correlations, declare it so (matrix='correlation')")
     if sds is not None:
         sds = _number_array(sds, source, "the standard deviations").ravel()
-        if len(sds) != p or not np.all(np.isfinite(sds)) or np.any(sds <= 0):
-            raise DataError(f"{source}: give {p} positive standard deviations, one per variable "
-                            f"({len(sds)} given{', not all positive' if len(sds) == p else ''})")
+        if len(sds) == p and not np.all(np.isfinite(sds) & (sds > 0)):
+            j = int(np.flatnonzero(~(np.isfinite(sds) & (sds > 0)))[0])
+            where = f"{source}:{sd_line}" if sd_line is not None else source
+            raise DataError(f"{where}: the standard deviation of '{printable(names[j])}' is {sds[j]:g}; standard "
+                            f"deviations must be positive")
+        if len(sds) != p:
+            raise DataError(f"{source}: give {p} positive standard deviations, one per variable ({len(sds)} given)")
     if means is not None:
         means = _number_array(means, source, "the means").ravel()
         if len(means) != p or not np.all(np.isfinite(means)):
@@ -254,6 +285,12 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
         raise DataError(f"{source}: {n_obs} observations for {p} variables; the analysis needs more observations than variables")
     notes = []
     if kind == "correlation":
+        beyond = np.argwhere(np.tril(np.abs(matrix) > 1.0 + 1e-9, -1))
+        if len(beyond):
+            i, j = beyond[0]
+            where = f"{source}:{row_lines[i]}" if row_lines is not None else f"{source} (row {i + 1} of the matrix)"
+            raise DataError(f"{where}: the correlation of '{printable(names[i])}' and '{printable(names[j])}' is "
+                            f"{matrix[i, j]:g}, beyond +/-1; check it for a typing error")
         if not np.allclose(np.diag(matrix), 1.0, atol=1e-6):
             raise DataError(f"{source}: a correlation matrix needs ones on its diagonal")
         if sds is not None:
@@ -270,4 +307,7 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
         raise DataError(f"{source}: the matrix is not positive definite")
     not_given = ((NotGiven.MEANS,) if means is None else ()) + (
         (NotGiven.STANDARD_DEVIATIONS,) if kind == "correlation" and sds is None else ())
-    return SampleMoments(tuple(names), matrix, mean, int(n_obs), int(n_obs), 0, source, not_given=not_given), notes
+    analysed = (AnalysedMatrix.COVARIANCE if kind != "correlation" else AnalysedMatrix.CORRELATION_WITH_SDS
+                if sds is not None else AnalysedMatrix.CORRELATION)
+    return SampleMoments(tuple(names), matrix, mean, int(n_obs), int(n_obs), 0, source, not_given=not_given,
+                         analysed=analysed), notes

@@ -303,7 +303,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                               "need the rows of answers (--robust cannot apply)")
         result = converged(fit_moments(spec, moments, replace(fit_options, diagnostics=False)))
         result = replace(result, warnings=tuple(notes) + result.warnings,
-                         data=replace(result.data, not_given=moments.not_given))
+                         data=replace(result.data, not_given=moments.not_given, analysed=moments.analysed))
         return _described(result, spec, None)
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
@@ -758,8 +758,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         moments, _ = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
         check_counting_rule(spec, build_parameter_table(spec))
-        return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0,
-                           {name: 1.0 for name in spec.observed_names}, None)
+        return CheckResult(spec, moments.source, moments.n_obs, moments.n_obs, 0, 0, {}, None,
+                           analysed=moments.analysed)
     spec, loaded, notes = read_inputs_with_notes(model, data, **read_options)
     frame, source = loaded.frame, loaded.source
     loaded = analysed_odd_values(loaded, spec, group)

@@ -83,6 +83,8 @@ class CheckResult(Presentable):
     #: under frequency weights, (read, complete, with gaps, with no answer) each row counted as often as its weight,
     #: as the fit counts them (its N); None otherwise
     counted: tuple[float, float, float, float] | None = None
+    #: summary statistics (data.summary_stats.AnalysedMatrix): no rows, so no row counts or coverage; ``rows`` is N
+    analysed: object | None = None
 
     @property
     def admissible(self) -> bool:
@@ -95,6 +97,11 @@ class CheckResult(Presentable):
                  f"{len(spec.observed_names)} indicators, all found in {self.source}."]
         if self.groups:
             lines.append(f"Groups: {len(self.groups)} ({', '.join(self.groups)}).")
+        if self.analysed is not None:
+            lines.append(f"Data: summary statistics, {self.analysed.value}, with N = {self.rows} as given in the file; "
+                         f"it holds no rows of answers, so there are no row counts or coverage.")
+            lines.extend(f"Note: {note}." for note in self.notes)
+            return "\n".join(lines)
         kept = self.rows + self.without_group
         read = f"{kept} read" if self.rows_in_file is None else f"{self.rows_in_file} read, {kept} kept by the row filter"
         read = (f"{read}, {self.without_group} without a group label (left out), {self.rows} with one:"
@@ -121,6 +128,11 @@ class CheckResult(Presentable):
         return "\n".join(lines)
 
     def to_dict(self) -> dict:
+        if self.analysed is not None:  # summary statistics: N, and no rows to count
+            return {"valid": True, "source": self.source, "factors": list(self.spec.factor_names),
+                    "indicators": list(self.spec.observed_names), "n_obs": self.rows,
+                    "matrix_analysed": self.analysed.name.lower(), "rows": None, "coverage": None,
+                    "problems": [p.to_dict() for p in self.problems], "notes": list(self.notes)}
         return {"valid": True, "source": self.source, "factors": list(self.spec.factor_names),
                 "indicators": list(self.spec.observed_names), "rows": self.rows, "complete_rows": self.complete,
                 "rows_with_gaps": self.with_gaps, "rows_without_answers": self.empty,
@@ -157,6 +169,8 @@ class DataSummary:
     not_given: tuple = ()
     # values read as no answer (--missing-codes), which scoring other data with this fit reads so too
     missing_codes: tuple[float, ...] = ()
+    # summary statistics: which matrix was analysed (data.summary_stats.AnalysedMatrix); None for rows of answers
+    analysed: object | None = None
 
     @property
     def pair_range(self) -> tuple[int, int] | None:
@@ -173,7 +187,7 @@ class DataSummary:
             "rows_dropped": self.rows_dropped,
             "n_obs": self.n_obs,
             "variables": list(self.variables),
-            "means": list(self.means),
+            "means": None if any(g.value == "means" for g in self.not_given) else list(self.means),
             "sds": list(self.sds),
         }
         if self.skewness:
@@ -189,6 +203,8 @@ class DataSummary:
             out["not_given"] = [g.value for g in self.not_given]
         if self.missing_codes:
             out["missing_codes"] = list(self.missing_codes)
+        if self.analysed is not None:
+            out["matrix_analysed"] = self.analysed.name.lower()
         return clean(out)
 
 

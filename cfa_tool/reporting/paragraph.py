@@ -310,6 +310,24 @@ def _sample_phrase(result) -> str:
     return text
 
 
+def _matrix_sentence(result) -> str:
+    """For a fit of summary statistics: which matrix was analysed instead of rows of answers ('' for rows), and,
+    for correlations without standard deviations, what that means for the estimates (Cudeck 1989)."""
+    from cfa_tool.data.summary_stats import AnalysedMatrix, NotGiven
+
+    analysed = getattr(result.data, "analysed", None)
+    if analysed is None:
+        return ""
+    text = (f"The model was fitted to summary statistics, not to rows of answers: {analysed.value}, with N = "
+            f"{result.n_obs} as given with the matrix")
+    text += "" if NotGiven.MEANS in result.data.not_given else " (and the items' means)"
+    if analysed is AnalysedMatrix.CORRELATION:
+        text += ("; the correlations were analysed as if they were covariances, so the unstandardized estimates are in "
+                 "standard-deviation units and their standard errors are only approximate (Cudeck, 1989), while the "
+                 "standardized solution and the fit are unaffected")
+    return text + "."
+
+
 def _fit_sentence(result) -> str:
     f = result.fit
     low, high = f.rmsea_ci90
@@ -366,6 +384,9 @@ def methods_paragraph(result) -> str:
     else:
         parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
+    matrix = _matrix_sentence(result)
+    if matrix:  # right after the sentence naming the estimation and N
+        parts.insert(1, matrix)
     design = getattr(result, "design", None)
     if design is not None:
         parts.append(design_sentence(result))

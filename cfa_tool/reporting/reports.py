@@ -70,7 +70,29 @@ def saved_report(payload: object, source: str) -> Report:
         raise OptionError(f"{source}: this result holds no 'report' part (written before results carried their report, "
                           f"or removed by hand), so there is nothing to show; run the command again with --json")
     try:
-        return Report.from_dict(saved)
+        report = Report.from_dict(saved)
     except (KeyError, TypeError, ValueError, AttributeError):
         raise OptionError(f"{source}: the report in this result is incomplete or changed by hand; run the command "
                           f"again with --json") from None
+    return _with_estimate_problems(report, payload)
+
+
+def _with_estimate_problems(report: Report, payload: dict) -> Report:
+    """``report`` with, first, the problems of the result's estimates themselves that its own list of problems
+    lacks (a file whose estimates were changed after the fit): the estimates are judged as a fresh fit's are."""
+    from dataclasses import replace
+
+    from cfa_tool.assessment.admissibility import estimate_row_problems
+    from cfa_tool.reporting.tables import NOT_ADMISSIBLE, ProblemNotice
+
+    listed = payload.get("problems")
+    known = {(q.get("kind"), tuple(q.get("parameters", ()))) for q in listed if isinstance(q, dict)} \
+        if isinstance(listed, list) else set()
+    found = [q for q in estimate_row_problems(payload.get("estimates"))
+             if (q.kind.value, q.parameters) not in known]
+    if not found:
+        return report
+    lines = tuple(f"The estimates in this file differ from the fit its report describes (changed after the fit?), and "
+                  f"they are not admissible: {q.explanation} Fit the model again rather than edit its result." for q in found)
+    old = report.notice.lines if report.notice is not None else ()
+    return replace(report, notice=ProblemNotice(NOT_ADMISSIBLE, lines + old, True))

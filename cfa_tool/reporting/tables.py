@@ -592,6 +592,12 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
             "to the factor (for a higher-order factor: omega hierarchical); omega total: due to all factors; alpha "
             "from the " + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
             + ("composite" if ordinal else "composite reliability") + " from the standardized loadings.")
+    single = [r.factor for r in rows if r.level == "first-order" and len(r.items) == 1]
+    if single:
+        note += (f" {', '.join(single)} {'has' if len(single) == 1 else 'have'} one item: with one indicator the "
+                 f"factor's share of the item's variance follows from the error variance fixed in the model, an "
+                 f"assumption rather than evidence, so no coefficients are shown and "
+                 f"{'it takes' if len(single) == 1 else 'they take'} no part in the Fornell-Larcker comparison.")
     methods = result.description.method_factors if result.description is not None else ()
     if methods:
         note += (f" Method factors ({', '.join(methods)}) stand for a way of answering, not a trait: they get no "
@@ -718,6 +724,8 @@ def item_table(result) -> ReportTable:
         for r in result.groups[0].reliability:
             for item, value in zip(r.items, r.item_total):
                 rest.setdefault(item, (r.factor, value, item in r.reversed))
+            if r.level == "first-order" and len(r.items) == 1:  # a one-item factor: no item-rest correlation
+                rest.setdefault(r.items[0], (r.factor, float("nan"), r.items[0] in r.reversed))
     shape = bool(d.skewness)
     # SDs with divisor N - 1, as descriptive tables report them (the model uses divisor N)
     stretch = (d.n_obs / (d.n_obs - 1)) ** 0.5 if d.n_obs > 1 else 1.0
@@ -725,9 +733,14 @@ def item_table(result) -> ReportTable:
     columns += [("Skewness", "r"), ("Excess kurtosis", "r")] if shape else []
     columns += [("Factor", "l"), ("Keying", "l"), ("Item-rest r", "r")] if rest else []
     body, values = [], []
+    # summary statistics without a mean row, or correlations without an sd row: those values are not known
+    no_means = any(g.value == "means" for g in result.data.not_given)
+    no_sds = any(g.value == "standard_deviations" for g in result.data.not_given)
     for k, (name, m, s) in enumerate(zip(d.variables, d.means, d.sds)):
-        row = [name] + ([str(d.answered[k])] if shape else []) + [num(m, 2), num(s * stretch, 2)]
-        numbers = [name] + ([d.answered[k]] if shape else []) + [m, s * stretch]
+        row = [name] + ([str(d.answered[k])] if shape else []) + ["not given" if no_means else num(m, 2),
+                                                                  "not given" if no_sds else num(s * stretch, 2)]
+        numbers = [name] + ([d.answered[k]] if shape else []) + [None if no_means else m,
+                                                                 None if no_sds else s * stretch]
         if shape:
             row += [num(d.skewness[k], 2), num(d.kurtosis[k], 2)]
             numbers += [d.skewness[k], d.kurtosis[k]]
@@ -737,7 +750,9 @@ def item_table(result) -> ReportTable:
             numbers += [factor, "reversed" if flipped else "", value]
         body.append(row)
         values.append(numbers)
-    note = "SD with divisor N - 1."
+    note = "SD with divisor N - 1." + (" The file gives no means, so none are shown (the fit takes every item's mean "
+                                       "as 0, which affects no estimate of this model)." if no_means else "") + (
+        " The file gives correlations without standard deviations, so none are shown." if no_sds else "")
     if shape:
         note += (" Skewness g1 and excess kurtosis g2 (moment estimators; 0 for a normal distribution), each from "
                  "the rows answering the item.")
@@ -748,8 +763,9 @@ def item_table(result) -> ReportTable:
     if weights is not None:
         note += (f" Mean and SD weighted by {weights}" + ("; N, skewness, kurtosis and item-rest r count each row once."
                                                           if shape or rest else "."))
-    title = "Items: descriptive statistics (analysed rows" + ("" if weights is None else
-                                                             f"; means and SDs weighted by {weights}") + ")"
+    title = ("Items: descriptive statistics (from the summary statistics)" if getattr(result.data, "analysed", None)
+             is not None else "Items: descriptive statistics (analysed rows"
+             + ("" if weights is None else f"; means and SDs weighted by {weights}") + ")")
     return _table("items", title, columns, body, note,
                   values=([c for c, _ in columns], values))
 
@@ -818,6 +834,9 @@ def rows_phrase(data, design=None) -> str:
     if design is not None and design.columns.weights is not None and design.columns.kind is WeightKind.FREQUENCY:
         return (f"{data.n_obs:,.10g} rows analysed, counted by their frequency weights ({design.columns.weights}), "
                 f"of {kept}{pair_rows_phrase(data)}")
+    analysed = getattr(data, "analysed", None)
+    if analysed is not None:  # summary statistics: no rows were read
+        return f"summary statistics ({analysed.value}), N = {data.n_obs} as given in the file"
     return f"{data.n_obs} rows analysed of {kept}{pair_rows_phrase(data)}"
 
 

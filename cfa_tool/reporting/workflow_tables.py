@@ -839,7 +839,10 @@ def power_curve_report(curve) -> Report:
 def population_report(simulated) -> Report:
     """The population a simulation drew from: each free parameter, in the model's units and standardized, and
     whether the model file gave it or it took the default."""
+    from cfa_tool.workflows.simulation import ValueSource
+
     population = simulated.population
+    entries = population.values()
     if population.fitted_from is not None:
         line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}; the items' means are "
                 f"{population.means_from.value}"
@@ -847,9 +850,16 @@ def population_report(simulated) -> Report:
                    "deviations)" if population.standard_units else "")
                 + ". The data follow the fitted model exactly, so they carry none of that model's misfit to the data "
                   "it was fitted to.")
+    elif any(v["from"] == ValueSource.FIXED.value for v in entries):
+        line = ("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances 1) "
+                "and converted to the model's scaling by fitting the model to that standardized population. Values "
+                "fixed in the model file hold as written, so the defaults beside them are those closest to that "
+                "population that the fixed values allow: their standardized values can differ from .7 and .3, and an "
+                "item's variance from 1 (the Standardized column gives each value as it is in the population drawn "
+                "from).")
     else:
         line = ("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances "
-                "1) and converted to the model's scaling; values from 'start' and 'fix' statements replace them.")
+                "1) and converted to the model's scaling; values from 'start' statements replace them.")
     frame = simulated.frame
     cut = population.ordinal_items
     made = (f"{len(frame)} rows of {frame.shape[1]} variables (seed {simulated.seed})"
@@ -857,14 +867,16 @@ def population_report(simulated) -> Report:
             + (f", {len(cut)} ordinal items cut at the fitted thresholds (answers 1 to k)"
                if cut and not simulated.categories else "")
             + (f", {100 * simulated.missing:g}% of answers removed completely at random" if simulated.missing else "") + ".")
-    source = "earlier fit" if population.fitted_from is not None else "model file"
-    entries = population.values()
     rows = [[f"{v['kind'].replace('_', ' ')} {', '.join(v['variables'])}", num(v["value"]), num(v["standardized"]),
-             "default" if v["default"] else source] for v in entries]
-    values = [[v["kind"], ", ".join(v["variables"]), v["value"], v["standardized"], "default" if v["default"] else source]
-              for v in entries]
+             v["from"]] for v in entries]
+    values = [[v["kind"], ", ".join(v["variables"]), v["value"], v["standardized"], v["from"]] for v in entries]
+    words = ("From: earlier fit = its estimate" if population.fitted_from is not None else
+             "From: default = the standardized default in the model's scaling; start = a 'start' statement")
+    if any(v["from"] in (ValueSource.FIXED.value, ValueSource.SCALE.value) for v in entries):
+        words += "; fix = a 'fix' statement; scale (fixed) = fixed to give a factor its scale"
+    words += "."
     table = _table("population", "Population values used", [("Parameter", "l"), ("Value", "r"), ("Standardized", "r"),
-                                                             ("From", "l")], rows,
+                                                             ("From", "l")], rows, words,
                    values=(["Kind", "Variables", "Value", "Standardized", "From"], values))
     carried = [] if simulated.missing else not_carried_line(population.not_carried)  # --missing gives gaps itself
     return Report(ResultKind.SIMULATE, "Simulated data", None, (made, line, *carried), (table,))
@@ -884,7 +896,8 @@ def check_report(found) -> Report:
     notice = T.problem_notice(found)
     if notice is not None:
         notice = ProblemNotice(T.DATA_CAUTION, notice.lines, False)
-    return Report(ResultKind.CHECK, "Model check", notice, tuple(lines), (table,))
+    # summary statistics hold no rows, so no share of rows answering
+    return Report(ResultKind.CHECK, "Model check", notice, tuple(lines), (table,) if found.coverage else ())
 
 
 BUILDERS = {ResultKind.COMPARE: comparison_report, ResultKind.INVARIANCE: invariance_report,

@@ -535,19 +535,24 @@ class SavedFit:
 
 
 def read_saved_fit(path) -> SavedFit:
-    """A fit's JSON result (``fit --json``), checked to be one."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    """A fit's JSON result (``fit --json``), checked to be one; its problems begin with those of its estimates
+    themselves (:func:`~cfa_tool.assessment.admissibility.estimate_row_problems`)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind, estimate_not_a_number, estimate_row_problems
     from cfa_tool.input_files import input_json
     from cfa_tool.pipeline.results import DataSummary
 
     payload = input_json(Path(path), "fit result", OptionError)
+    text = estimate_not_a_number(payload.get("estimates")) if isinstance(payload, dict) else None
+    if text is not None:
+        raise OptionError(f"'{printable(str(path))}': the estimate of {text}, not a number; write numbers without "
+                          f"quotes, or fit the model again rather than edit its result")
     try:
         if payload.get("tool") != "cfa-tool" or "estimates" not in payload:
             raise ValueError
         d = payload["data"]
         counts = d.get("category_counts") or {}
         categories = tuple(tuple((float(c["value"]), int(c["rows"])) for c in counts.get(x, ())) for x in d["variables"])
-        means = tuple(float(v) for v in d["means"])
+        means = tuple(float(v) for v in d["means"]) if d["means"] is not None else (0.0,) * len(d["variables"])
         not_given = tuple(NotGiven(v) for v in d.get("not_given", ()))
         if "not_given" not in d and not any(e.get("kind") == "intercept" for e in payload["estimates"]) \
                 and not any(means) and not counts:
@@ -558,6 +563,8 @@ def read_saved_fit(path) -> SavedFit:
                               missing_codes=tuple(float(v) for v in d.get("missing_codes", ())))
         problems = tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
                                  q["advice"], q["group"]) for q in payload.get("problems", ()))
+        # the estimates themselves judged as a fresh fit is, whatever the file's flag and problems say
+        problems = estimate_row_problems(payload["estimates"]) + problems
         model = payload["model"]
     except (ValueError, KeyError, TypeError, AttributeError):
         raise OptionError(f"'{printable(str(path))}' is not the JSON result of a fit by cfa-tool (fit --json)") from None
@@ -687,8 +694,10 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     saved = read_saved_fit(saved_path)
     refuse_unknown_scale(saved.data, f"the fit in '{printable(str(saved_path))}'")
     if not saved.admissible:
-        raise EstimationError(f"the fit in '{printable(str(saved_path))}' is not admissible, so no factor scores are "
-                              f"computed with it")
+        first = next((p for p in saved.problems if p.kind.inadmissible), None)
+        why = f" (it has {first.phrase()})" if first is not None else ""
+        raise EstimationError(f"the fit in '{printable(str(saved_path))}' is not admissible{why}, so no factor scores "
+                              f"are computed with it")
     spec = api.load_spec(model)
     chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")))
     models, labels = models_of_saved_fit(spec, saved)

@@ -126,8 +126,8 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
     sizes = check.sample_sizes(n_obs)
     for n in sizes:
         if n <= p + 1:
-            raise OptionError(f"the sample size {n} is too small for {p} variables: each simulated data set needs more "
-                              f"rows than variables (and a factor analysis far more)")
+            raise OptionError(f"the sample size {n} is too small for {p} variables: each simulated data set needs at "
+                              f"least {p + 2} rows (a factor analysis far more)")
         if n * p > check.MAX_SIMULATED_CELLS:
             raise OptionError(f"{n:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values per "
                               f"simulated data set; plan with a smaller sample size")

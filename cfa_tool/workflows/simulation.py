@@ -27,7 +27,7 @@ from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
@@ -46,6 +46,16 @@ class ItemMeans(Enum):
     SAMPLE_MEANS = "the item means of the rows the earlier fit was fitted to (it estimated no intercepts)"
     UNKNOWN = "not known to the earlier fit (summary statistics without means): every item centred at 0"
     THRESHOLDS = "set by the earlier fit's thresholds (answers 1 to k)"
+
+
+class ValueSource(Enum):
+    """Where a population value came from (the population table's 'From' column and its JSON 'from')."""
+
+    DEFAULT = "default"
+    START = "start"  # a 'start' statement of the model file
+    FIXED = "fix"  # a 'fix' statement of the model file
+    SCALE = "scale (fixed)"  # fixed to give a factor its scale
+    EARLIER_FIT = "earlier fit"
 
 
 @dataclass(frozen=True, eq=False)
@@ -76,8 +86,9 @@ class Population:
         return self.table.observed
 
     def values(self) -> list[dict]:
-        """Each free parameter's population value, unstandardized and standardized, and whether it
-        was a default (for the report and JSON)."""
+        """Each parameter's population value, unstandardized and standardized, whether it was a default and
+        where it came from (a :class:`ValueSource` word), for the report and JSON: the free parameters and the
+        values the model fixes (its 'fix' statements and the values that set each factor's scale)."""
         from cfa_tool.assessment.standardized import standardize_entries
 
         model = StructuredModel(self.table)
@@ -87,18 +98,29 @@ class Population:
         defaulted = set(self.defaulted)
         out, seen = [], set()
         for e, par in enumerate(self.table.parameters):
-            if not par.free or par.terms[0][0] in seen:
+            if not par.free:
+                if par.kind not in ("intercept", "mean", "threshold") and par.origin in ("user", "scale"):
+                    source = ValueSource.SCALE if par.origin == "scale" else ValueSource.FIXED
+                    out.append({"kind": par.kind, "variables": list(par.variables), "value": float(entries[e]),
+                                  "standardized": float(standardized[e]), "default": False, "from": source.value})
+                continue
+            if par.terms[0][0] in seen:
                 continue
             seen.add(par.terms[0][0])
+            default = self.table.free_labels[par.terms[0][0]] in defaulted
+            source = (ValueSource.EARLIER_FIT if self.fitted_from is not None else ValueSource.DEFAULT if default
+                      else ValueSource.START)
             out.append({"kind": par.kind, "variables": list(par.variables), "value": float(entries[e]),
-                        "standardized": float(standardized[e]), "default": self.table.free_labels[par.terms[0][0]] in defaulted})
+                        "standardized": float(standardized[e]), "default": default, "from": source.value})
         if self.means is not None:  # each item's population mean; standardized: in its standard deviations
             out.extend({"kind": "item_mean", "variables": [x], "value": float(mu),
-                        "standardized": float(mu / np.sqrt(self.sigma[k, k])), "default": False}
+                        "standardized": float(mu / np.sqrt(self.sigma[k, k])), "default": False,
+                        "from": ValueSource.EARLIER_FIT.value}
                        for k, (x, mu) in enumerate(zip(self.observed, self.means)) if x not in self.ordinal_items)
         for item in self.ordinal_items:  # on the latent response's scale (variance 1): standardized already
             out.extend({"kind": "threshold", "variables": [item, str(step + 1)], "value": float(tau),
-                        "standardized": float(tau), "default": self.fitted_from is None}
+                        "standardized": float(tau), "default": self.fitted_from is None,
+                        "from": (ValueSource.DEFAULT if self.fitted_from is None else ValueSource.EARLIER_FIT).value}
                        for step, tau in enumerate(self.thresholds[item]))
         return out
 
@@ -209,13 +231,23 @@ def fitted_estimates(fitted) -> tuple[list[dict], str, bool, bool, bool, dict]:
 def _population_from_fit(spec: Spec, fitted) -> Population:
     """Population values taken from an earlier fit of the same model: every free parameter's estimate, so
     reverse-keyed loadings, negative correlations and the observed residual variances carry over."""
+    from cfa_tool.assessment.admissibility import estimate_not_a_number, estimate_row_problems
+
     rows, source, admissible, grouped, ordinal, payload = fitted_estimates(fitted)
+    text = estimate_not_a_number(rows)
+    if text is not None:
+        raise OptionError(f"{source}: the estimate of {text}, not a number; write numbers without quotes, or fit the "
+                          f"model again rather than edit its result")
     if grouped:
         raise OptionError(f"{source}: the fit has groups; population values are taken from a fit of one group")
+    found = estimate_row_problems(rows)  # the estimates themselves, whatever the file's flag says
+    if found:
+        raise OptionError(f"{source}: the fitted solution is not admissible (its estimates have {found[0].phrase()}), "
+                          f"so it cannot serve as a population")
     if not admissible:
-        problems = fitted.get("problems", []) if isinstance(fitted, dict) else getattr(fitted, "problems", ())
+        problems = payload.get("problems", [])
         first = problems[0] if problems else None
-        what = (first.get("kind") if isinstance(first, dict) else first.kind.value) if first is not None else ""
+        what = first.get("kind") if isinstance(first, dict) else ""
         raise OptionError(f"{source}: the fitted solution is not admissible ({what or 'see its problems'}), so it "
                           f"cannot serve as a population")
     if spec.starts:
@@ -316,6 +348,79 @@ def _fitted_means(model: StructuredModel, theta: np.ndarray, value_of: dict, pay
     return means, ItemMeans.SAMPLE_MEANS
 
 
+def _as_written(par) -> str:
+    """A parameter as a model file's 'fix' statement names it: variance(a2), covariance(f1, f2), loading(f1, a3)."""
+    word = {"factor_variance": "variance", "residual_variance": "variance", "factor_covariance": "covariance",
+            "residual_covariance": "covariance"}.get(par.kind, par.kind)
+    return f"{word}({', '.join(par.variables)})"
+
+
+def _correlation(value: float) -> str:
+    return f"{value:.2f}".replace("0.", ".", 1)
+
+
+def _values(how: str) -> str:
+    return "fixed values" if how == "fixed at" else "start values"
+
+
+def impossible_fixed_values(table: ParameterTable, source: str) -> None:
+    """An error (the model file is the bad input) when the values the model file gives ('fix' and 'start'
+    statements, and the values that set each factor's scale) cannot belong to any population: a variance below
+    zero, or covariances whose correlations (with both variances given too) lie beyond +/-1 or cannot hold together
+    (their correlation matrix is not positive definite).  A covariance matrix is positive semi-definite, so each
+    of its variances is at least 0, each correlation within +/-1, and so is every principal submatrix (Horn &
+    Johnson 2013, Observation 7.1.2)."""
+    given: dict[tuple, tuple[float, str, object]] = {}  # (kind, variables) -> (value, how it was given, parameter)
+    for par in table.parameters:
+        if par.group != 0:
+            continue
+        if not par.free:
+            given[(par.kind, par.variables)] = (par.offset, "fixed at", par)
+        elif len(par.terms) == 1 and not np.isnan(table.start[par.terms[0][0]]):  # a 'start' statement
+            index, coefficient = par.terms[0]
+            value = par.offset + coefficient * table.start[index]
+            given[(par.kind, par.variables)] = (value, "given the start value", par)
+    for value, how, par in given.values():
+        if par.kind in ("factor_variance", "residual_variance") and value < 0:
+            raise ModelError(f"{source}: the {_values(how)} make the population covariance matrix impossible: "
+                             f"{_as_written(par)} is {how} {value:g}, and a variance cannot be negative")
+    for kind, names in (("factor", table.latent), ("residual", table.observed)):
+        variance = {x: given[(f"{kind}_variance", (x,))][0] for x in names if (f"{kind}_variance", (x,)) in given}
+        pairs = {}
+        for (k, variables), (value, how, par) in given.items():
+            a, b = variables[0], variables[-1]
+            if k == f"{kind}_covariance" and a in variance and b in variance:
+                pairs[frozenset((a, b))] = (value, how, par)
+        for value, how, par in pairs.values():
+            a, b = par.variables
+            if variance[a] == 0 or variance[b] == 0 or abs(value) > np.sqrt(variance[a] * variance[b]):
+                raise ModelError(f"{source}: the {_values(how)} make the population covariance matrix impossible: "
+                                 f"{_as_written(par)} is {how} {value:g}, beyond what the variances of {a} and {b} "
+                                 f"allow (a correlation beyond +/-1)")
+        # the largest set of these variables whose covariances are all given: it must be positive definite
+        members = sorted({x for pair in pairs for x in pair}, key=list(names).index)
+        while len(members) > 2:
+            lacking = [sum(frozenset((x, y)) not in pairs for y in members if y != x) for x in members]
+            if not any(lacking):
+                break
+            members.pop(int(np.argmax(lacking)))
+        if len(members) < 3:
+            continue
+        sd = np.sqrt([variance[x] for x in members])
+        corr = np.eye(len(members))
+        for i in range(len(members)):
+            for j in range(i):
+                corr[i, j] = corr[j, i] = pairs[frozenset((members[i], members[j]))][0] / (sd[i] * sd[j])
+        if np.linalg.eigvalsh(corr)[0] <= 0:
+            values = [_correlation(corr[i, j]) for i in range(len(members)) for j in range(i)]
+            what = "factor correlations" if kind == "factor" else "residual correlations"
+            hows = {pairs[frozenset((members[i], members[j]))][1] for i in range(len(members)) for j in range(i)}
+            how = "fixed at" if hows == {"fixed at"} else "given as"
+            raise ModelError(f"{source}: the {what} {how} {', '.join(values[:-1])} and {values[-1]} "
+                             f"({', '.join(members)}) cannot hold together (their matrix is not positive definite), so "
+                             f"no population has them; change the values")
+
+
 def population_from_spec(spec: Spec, fitted=None) -> Population:
     """The population of ``spec``: its 'start' and 'fix' values with standardized defaults beside them, or,
     with ``fitted`` (a fit result, its JSON dict or the JSON file), the estimates of that earlier fit."""
@@ -326,6 +431,7 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
         return _population_from_fit(spec, fitted)
     one_group_only(spec, "the simulation draws rows of one group")
     table = build_parameter_table(spec)
+    impossible_fixed_values(table, spec.source)
     model = StructuredModel(table)
     given = table.start.copy()
     kind_of: dict[int, str] = {}

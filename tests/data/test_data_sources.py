@@ -407,7 +407,7 @@ def test_model_text_or_path_by_explicit_rules(tmp_path, hs_items):
     ({"n_obs": 300.7}, "must be a whole number, not 300.7"),
     ({"n_obs": "301"}, "must be a whole number, not '301'"),
     ({"sds": [1.0] * 8}, "give 9 positive standard deviations, one per variable (8 given)"),
-    ({"sds": [1.0] * 8 + [-1.0]}, "give 9 positive standard deviations, one per variable (9 given, not all positive)"),
+    ({"sds": [1.0] * 8 + [-1.0]}, "the standard deviation of 'x9' is -1; standard deviations must be positive"),
     ({"means": [0.0] * 10}, "give 9 finite means, one per variable (10 given)"),
     ({"asymmetric": True}, "the matrix is not symmetric (row 1, column 2 differs from row 2, column 1)"),
     ({"variables": ITEMS[:8] + ["x1"]}, "the variable 'x1' is named twice"),

@@ -200,3 +200,13 @@ def test_huge_model_file_is_refused(tmp_path):
     path.write_text("# filler\n" * 1_200_000)
     with pytest.raises(ModelError, match="at most"):
         read_model_file(path)
+
+
+def test_comment_and_blank_lines_inside_a_list_continued_after_a_comma():
+    # hostile trial: a comment line there ended the statement ('the line ends too early'), a blank line did not
+    spec = parse_model("factor punctuality: on_time, short_wait,\n# the third item\n   \n    # and the fourth\n"
+                       "  accurate_info, easy_transfer\nfactor comfort: seat_available, clean, temperature\n")
+    assert tuple(i.text for i in spec.factors[0].indicators) == ("on_time", "short_wait", "accurate_info", "easy_transfer")
+    with pytest.raises(ModelError) as caught:  # a place after such lines is still reported at its own line
+        parse_model("factor a: x1, x2,\n# note\n\n  x3\nfactor b x4\n", source="m.cfa")
+    assert str(caught.value).startswith("m.cfa:5:10:")

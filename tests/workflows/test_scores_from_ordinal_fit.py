@@ -121,7 +121,8 @@ def test_a_json_of_another_model_or_altered_is_refused(tmp_path):
     payload["estimates"][-1]["estimate"] = "high"  # a threshold that is not a number
     altered = tmp_path / "altered.json"
     altered.write_text(json.dumps(payload))
-    with pytest.raises(OptionError, match="the fit result is not of the model"):
+    # named as the estimate that is not a number (hostile trial), not as the result of another model
+    with pytest.raises(OptionError, match='the estimate of threshold\\(q4, 4\\) is "high", not a number'):
         score_with_saved_fit(model_file, altered, _draw(20, 8))
 
 

@@ -1,0 +1,89 @@
+"""Populations with values fixed in the model file (hostile trial): impossible fixed values are one-line errors
+naming them, and the population table lists every value with where it came from.
+
+Check values and their sources: a variance is at least 0 and a correlation matrix is positive semi-definite, so
+are its principal submatrices (Horn & Johnson 2013, Observation 7.1.2); the correlations .95, .95 and -.95 of three
+variables cannot hold together: the determinant of that matrix is 1 - 3(.95^2) + 2(.95)(.95)(-.95) < 0 (computed by
+hand: 1 - 2.7075 - 1.71475 = -3.42)."""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+
+from cfa_tool.cli import main
+
+
+def _run(argv, capsys):
+    code = main([str(a) for a in argv])
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+THREE = "factor f1: a1, a2, a3\nfactor f2: b1, b2, b3\nfactor f3: c1, c2, c3\nscale latent by variance\n"
+
+
+@pytest.mark.parametrize("command", ["simulate", "power-simulation"])
+@pytest.mark.parametrize("text, words", [
+    ("factor f1: a1, a2, a3\nfix variance(a2) = -0.01\n",
+     "the fixed values make the population covariance matrix impossible: variance(a2) is fixed at -0.01"),
+    ("factor f1: a1, a2, a3\nfix variance(a1) = -0.5\n", "variance(a1) is fixed at -0.5"),
+    (THREE + "fix covariance(f1, f2) = 0.95\nfix covariance(f2, f3) = 0.95\nfix covariance(f1, f3) = -0.95\n",
+     "the factor correlations fixed at .95, -.95 and .95 (f1, f2, f3) cannot hold together (their matrix is not "
+     "positive definite)"),
+    (THREE + "fix covariance(f1, f2) = 1.2\n", "covariance(f1, f2) is fixed at 1.2, beyond what the variances"),
+    # the same with 'start' values (a negative one was simulated without a word; a correlation of 1.5 was said to be
+    # a model that 'may not be identified')
+    ("factor f1: a1, a2, a3\nstart variance(a2) = -0.01\n",
+     "the start values make the population covariance matrix impossible: variance(a2) is given the start value -0.01"),
+    (THREE + "start covariance(f1, f2) = 1.5\n", "covariance(f1, f2) is given the start value 1.5, beyond what the "
+                                                 "variances of f1 and f2 allow"),
+])
+def test_impossible_fixed_values_are_one_line_naming_them(tmp_path, capsys, command, text, words):
+    model = tmp_path / "m.cfa"
+    model.write_text(text)
+    out = tmp_path / "rows.csv"
+    argv = ([command, model, "--n", 50, "--output", out] if command == "simulate" else
+            [command, model, "--n", 200, "--replications", 2, "--workers", 1])
+    code, _, err = _run(argv, capsys)
+    assert code == 2 and err.startswith(f"cfa-tool: {model}: ") and words in err and len(err.strip().splitlines()) == 1
+    assert "may not be identified" not in err and not out.exists()
+
+
+def test_possible_fixed_values_still_simulate(tmp_path, capsys):
+    model = tmp_path / "m.cfa"
+    model.write_text(THREE + "fix covariance(f1, f2) = 0.5\nfix covariance(f2, f3) = 0.5\nfix covariance(f1, f3) = 0.2\n"
+                     "fix variance(a2) = 0\n")
+    code, _, err = _run(["simulate", model, "--n", 20, "--output", tmp_path / "rows.csv"], capsys)
+    assert code == 0, err
+
+
+def test_the_population_table_lists_fixed_values_and_says_where_each_came_from(tmp_path, capsys):
+    model = tmp_path / "fx.cfa"
+    model.write_text("factor f1: a1, a2, a3\nfix loading(f1, a3) = 0.8\nfix variance(a2) = 0.3\n")
+    saved = tmp_path / "pop.json"
+    code, out, err = _run(["simulate", model, "--n", 50, "--output", tmp_path / "rows.csv", "--json", saved], capsys)
+    assert code == 0, err
+    population = {(v["kind"], tuple(v["variables"])): v for v in json.loads(saved.read_text())["population"]}
+    # the values the model file fixes, as written there
+    assert population[("loading", ("f1", "a3"))]["value"] == 0.8 and population[("loading", ("f1", "a3"))]["from"] == "fix"
+    assert population[("residual_variance", ("a2",))]["value"] == 0.3
+    assert population[("residual_variance", ("a2",))]["from"] == "fix"
+    assert population[("loading", ("f1", "a1"))]["from"] == "default"
+    words = " ".join(out.split())
+    assert words.index("Values fixed in the model file hold as written") < words.index("their standardized values can "
+                                                                                         "differ from .7 and .3")
+    assert words.index("loading f1, a3 0.800") < words.index("residual variance a2 0.300 0.308 fix")
+    assert "fix = a 'fix' statement" in words
+
+
+def test_values_that_set_a_factors_scale_are_listed(tmp_path, capsys):
+    model = tmp_path / "m.cfa"
+    model.write_text("factor f1: a1, a2, a3\n")
+    saved = tmp_path / "pop.json"
+    assert _run(["simulate", model, "--n", 20, "--output", tmp_path / "rows.csv", "--json", saved], capsys)[0] == 0
+    population = {(v["kind"], tuple(v["variables"])): v for v in json.loads(saved.read_text())["population"]}
+    marker = population[("loading", ("f1", "a1"))]
+    # the default standardized loading .7 (this module's documented default), through the marker fixed at 1
+    assert marker["from"] == "scale (fixed)" and marker["value"] == 1.0 and marker["standardized"] == pytest.approx(0.7)
