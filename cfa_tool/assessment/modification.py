@@ -23,7 +23,7 @@ from itertools import chain
 
 import numpy as np
 
-from cfa_tool.assessment.standardized import standardize_entries
+from cfa_tool.assessment.standardized import Standardization, standardization, standardize_entries
 from cfa_tool.numerics.linalg import inverse_quadratic_forms, scaled_inverse
 from cfa_tool.estimation.objective import Objective
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
@@ -176,13 +176,15 @@ class CandidateLayout:
     cols: np.ndarray
     chunks: tuple[slice, ...]
     bases: tuple[EntryBasis, ...]
+    standardization: Standardization
 
 
 def candidate_layout(cands: list[Candidate], p: int, m: int) -> CandidateLayout:
     codes, rows, cols = candidate_arrays(cands)
     chunks = tuple(_chunks(len(cands)))
     return CandidateLayout(codes, rows, cols, chunks,
-                           tuple(entry_basis(codes[sl], rows[sl], cols[sl], p, m, with_pairs=False) for sl in chunks))
+                           tuple(entry_basis(codes[sl], rows[sl], cols[sl], p, m, with_pairs=False) for sl in chunks),
+                           standardization(codes, rows, cols, p, m))
 
 
 def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
@@ -216,7 +218,7 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
         mi = np.where(ok, 0.5 * n * d**2 / np.where(ok, h, 1.0), np.nan)
         epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
         lay = layouts[g]
-        std_epc, _ = standardize_entries(mats, lay.codes, lay.rows, lay.cols, epc)
+        std_epc, _ = standardize_entries(mats, lay.codes, lay.rows, lay.cols, epc, lay.standardization)
         columns.append((mi, epc, std_epc, ok))
     labels = tuple(table.groups) if table.multigroup else (None,) * table.n_groups
     if not columns:
