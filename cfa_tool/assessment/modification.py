@@ -105,14 +105,13 @@ class ModificationIndices(Sequence):
 
     def dicts(self) -> list[dict]:
         """The rows as JSON-ready dictionaries (what ``ModificationIndex.to_dict`` gives, NaN and infinities as None)."""
-        out = []
-        columns = (self.index.tolist(), self.expected_change.tolist(), self.standardized_expected_change.tolist())
-        columns = tuple(c if np.isfinite(c).all() else [v if v - v == 0.0 else None for v in c] for c in columns)
-        for r, g, mi, epc, std in zip(self.rows.tolist(), self.groups.tolist(), *columns):
-            kind, variables, *_ = self.candidates[r]
-            out.append({"kind": kind, "variables": list(variables), "group": self.labels[g], "index": mi,
-                        "expected_change": epc, "standardized_expected_change": std})
-        return out
+        columns = [c.tolist() if np.isfinite(c).all() else [v if v - v == 0.0 else None for v in c.tolist()]
+                   for c in (self.index, self.expected_change, self.standardized_expected_change)]
+        candidates, labels = self.candidates, self.labels
+        return [{"kind": c[0], "variables": list(c[1]), "group": labels[g], "index": mi, "expected_change": epc,
+                 "standardized_expected_change": std}
+                for c, g, mi, epc, std in zip(map(candidates.__getitem__, self.rows.tolist()), self.groups.tolist(),
+                                              *columns)]
 
 
 def collected_indices(candidates: list[list[Candidate]], labels: tuple[str | None, ...], index: np.ndarray,
