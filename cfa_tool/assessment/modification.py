@@ -187,19 +187,22 @@ def candidate_layout(cands: list[Candidate], p: int, m: int) -> CandidateLayout:
 
 
 def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
-                layouts: list[CandidateLayout] | None = None) -> ModificationIndices:
+                layouts: list[CandidateLayout] | None = None, mats: list | None = None) -> ModificationIndices:
     """MI and EPC for each group's candidate entries (``candidates[g]``; ``layouts[g]`` their
-    :func:`candidate_layout`, made here when not given)."""
+    :func:`candidate_layout`, made here when not given); ``mats``: each group's model matrices at theta when the
+    caller has them (their implied moments computed once)."""
     table = model.table
     if layouts is None:
         layouts = [candidate_layout(c, model.p, model.m) for c in candidates]
+    if mats is None:
+        mats = [model.matrices(theta, g) for g in range(table.n_groups)]
     if hasattr(likelihood, "candidate_scores"):  # complete data: every block from rank-two derivatives, in chunks
         H_tt = likelihood.evaluate(theta).information
         # made when used: one chunk's block of the information held at a time
-        parts = [(g, weight, model.matrices(theta, g), likelihood.candidate_scores(theta, g, layouts[g].bases))
+        parts = [(g, weight, mats[g], likelihood.candidate_scores(theta, g, layouts[g].bases))
                  for g, weight in enumerate(likelihood.weights) if candidates[g]]
     else:
-        H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates, layouts)
+        H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates, layouts, mats)
     forms = inverse_quadratic_forms(H_tt)  # one factorisation for every group and chunk
     n = likelihood.n_total
     columns = []
@@ -237,14 +240,14 @@ def candidate_arrays(cands: list[Candidate]) -> tuple[np.ndarray, np.ndarray, np
 
 
 def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
-                    layouts: list[CandidateLayout]):
+                    layouts: list[CandidateLayout], matrices: list):
     """The same blocks from full derivative matrices, in chunks (incomplete data; every group's information is
     summed before the blocks are used, so they are held)."""
     q = len(theta)
     H_tt = np.zeros((q, q))
     parts = []
     for g, weight in enumerate(likelihood.weights):
-        mats = model.matrices(theta, g)
+        mats = matrices[g]
         group = likelihood.group_parts(theta, g)
         t_sigma, t_mu = model.jacobian(theta, g)
         H_tt += weight * group.information(t_sigma, t_mu)
@@ -261,13 +264,14 @@ def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candi
 
 
 def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: Objective,
-                         exogenous: tuple[str, ...]) -> ModificationIndices:
+                         exogenous: tuple[str, ...], mats: list | None = None) -> ModificationIndices:
+    """Score tests of every zero parameter that could be freed (``mats``: as :func:`score_tests` takes them)."""
     table = model.table
     key = ("modification candidates", exogenous)  # fixed by the model: built at its first fit, kept for its refits
     if key not in model.derived:
         candidates = [candidate_entries(table, exogenous, g) for g in range(table.n_groups)]
         model.derived[key] = candidates, [candidate_layout(c, model.p, model.m) for c in candidates]
-    return score_tests(model, theta, likelihood, *model.derived[key])
+    return score_tests(model, theta, likelihood, *model.derived[key], mats=mats)
 
 
 def equality_score_tests(model: StructuredModel, theta: np.ndarray, likelihood: Objective,

@@ -270,7 +270,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             cov_theta = parameter_covariance(information, n_total)
         inference = wald_inference(values, model.J, cov_theta)
         if options.modification_indices:
-            mis = modification_indices(model, theta, likelihood, exogenous_factors(spec))
+            mis = modification_indices(model, theta, likelihood, exogenous_factors(spec), mats)
     else:
         # a model that is not identified often shows itself by not converging: say so when it is the cause
         evaluation = likelihood.evaluate(theta)
