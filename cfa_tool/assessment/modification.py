@@ -23,7 +23,7 @@ from itertools import chain
 
 import numpy as np
 
-from cfa_tool.assessment.standardized import standardize_entries
+from cfa_tool.assessment.standardized import Standardization, standardization, standardize_entries
 from cfa_tool.numerics.linalg import inverse_quadratic_forms, scaled_inverse
 from cfa_tool.estimation.objective import Objective
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
@@ -105,14 +105,13 @@ class ModificationIndices(Sequence):
 
     def dicts(self) -> list[dict]:
         """The rows as JSON-ready dictionaries (what ``ModificationIndex.to_dict`` gives, NaN and infinities as None)."""
-        out = []
-        columns = (self.index.tolist(), self.expected_change.tolist(), self.standardized_expected_change.tolist())
-        columns = tuple(c if np.isfinite(c).all() else [v if v - v == 0.0 else None for v in c] for c in columns)
-        for r, g, mi, epc, std in zip(self.rows.tolist(), self.groups.tolist(), *columns):
-            kind, variables, *_ = self.candidates[r]
-            out.append({"kind": kind, "variables": list(variables), "group": self.labels[g], "index": mi,
-                        "expected_change": epc, "standardized_expected_change": std})
-        return out
+        columns = [c.tolist() if np.isfinite(c).all() else [v if v - v == 0.0 else None for v in c.tolist()]
+                   for c in (self.index, self.expected_change, self.standardized_expected_change)]
+        candidates, labels = self.candidates, self.labels
+        return [{"kind": c[0], "variables": list(c[1]), "group": labels[g], "index": mi, "expected_change": epc,
+                 "standardized_expected_change": std}
+                for c, g, mi, epc, std in zip(map(candidates.__getitem__, self.rows.tolist()), self.groups.tolist(),
+                                              *columns)]
 
 
 def collected_indices(candidates: list[list[Candidate]], labels: tuple[str | None, ...], index: np.ndarray,
@@ -176,29 +175,34 @@ class CandidateLayout:
     cols: np.ndarray
     chunks: tuple[slice, ...]
     bases: tuple[EntryBasis, ...]
+    standardization: Standardization
 
 
 def candidate_layout(cands: list[Candidate], p: int, m: int) -> CandidateLayout:
     codes, rows, cols = candidate_arrays(cands)
     chunks = tuple(_chunks(len(cands)))
     return CandidateLayout(codes, rows, cols, chunks,
-                           tuple(entry_basis(codes[sl], rows[sl], cols[sl], p, m, with_pairs=False) for sl in chunks))
+                           tuple(entry_basis(codes[sl], rows[sl], cols[sl], p, m, with_pairs=False) for sl in chunks),
+                           standardization(codes, rows, cols, p, m))
 
 
 def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
-                layouts: list[CandidateLayout] | None = None) -> ModificationIndices:
+                layouts: list[CandidateLayout] | None = None, mats: list | None = None) -> ModificationIndices:
     """MI and EPC for each group's candidate entries (``candidates[g]``; ``layouts[g]`` their
-    :func:`candidate_layout`, made here when not given)."""
+    :func:`candidate_layout`, made here when not given); ``mats``: each group's model matrices at theta when the
+    caller has them (their implied moments computed once)."""
     table = model.table
     if layouts is None:
         layouts = [candidate_layout(c, model.p, model.m) for c in candidates]
+    if mats is None:
+        mats = [model.matrices(theta, g) for g in range(table.n_groups)]
     if hasattr(likelihood, "candidate_scores"):  # complete data: every block from rank-two derivatives, in chunks
         H_tt = likelihood.evaluate(theta).information
         # made when used: one chunk's block of the information held at a time
-        parts = [(g, weight, model.matrices(theta, g), likelihood.candidate_scores(theta, g, layouts[g].bases))
+        parts = [(g, weight, mats[g], likelihood.candidate_scores(theta, g, layouts[g].bases))
                  for g, weight in enumerate(likelihood.weights) if candidates[g]]
     else:
-        H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates, layouts)
+        H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates, layouts, mats)
     forms = inverse_quadratic_forms(H_tt)  # one factorisation for every group and chunk
     n = likelihood.n_total
     columns = []
@@ -216,7 +220,7 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
         mi = np.where(ok, 0.5 * n * d**2 / np.where(ok, h, 1.0), np.nan)
         epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
         lay = layouts[g]
-        std_epc, _ = standardize_entries(mats, lay.codes, lay.rows, lay.cols, epc)
+        std_epc, _ = standardize_entries(mats, lay.codes, lay.rows, lay.cols, epc, lay.standardization)
         columns.append((mi, epc, std_epc, ok))
     labels = tuple(table.groups) if table.multigroup else (None,) * table.n_groups
     if not columns:
@@ -236,14 +240,14 @@ def candidate_arrays(cands: list[Candidate]) -> tuple[np.ndarray, np.ndarray, np
 
 
 def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
-                    layouts: list[CandidateLayout]):
+                    layouts: list[CandidateLayout], matrices: list):
     """The same blocks from full derivative matrices, in chunks (incomplete data; every group's information is
     summed before the blocks are used, so they are held)."""
     q = len(theta)
     H_tt = np.zeros((q, q))
     parts = []
     for g, weight in enumerate(likelihood.weights):
-        mats = model.matrices(theta, g)
+        mats = matrices[g]
         group = likelihood.group_parts(theta, g)
         t_sigma, t_mu = model.jacobian(theta, g)
         H_tt += weight * group.information(t_sigma, t_mu)
@@ -260,13 +264,14 @@ def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candi
 
 
 def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: Objective,
-                         exogenous: tuple[str, ...]) -> ModificationIndices:
+                         exogenous: tuple[str, ...], mats: list | None = None) -> ModificationIndices:
+    """Score tests of every zero parameter that could be freed (``mats``: as :func:`score_tests` takes them)."""
     table = model.table
     key = ("modification candidates", exogenous)  # fixed by the model: built at its first fit, kept for its refits
     if key not in model.derived:
         candidates = [candidate_entries(table, exogenous, g) for g in range(table.n_groups)]
         model.derived[key] = candidates, [candidate_layout(c, model.p, model.m) for c in candidates]
-    return score_tests(model, theta, likelihood, *model.derived[key])
+    return score_tests(model, theta, likelihood, *model.derived[key], mats=mats)
 
 
 def equality_score_tests(model: StructuredModel, theta: np.ndarray, likelihood: Objective,

@@ -19,7 +19,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.linalg import solve_triangular
+from scipy.linalg import lapack, solve_triangular
 
 from cfa_tool.numerics import distributions as dist
 
@@ -50,8 +50,11 @@ def whitened_rows(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] | Non
     ``moments``: the rows' (mean, covariance with divisor N) when the caller has them (the fit's sample moments)."""
     mean, covariance = moments if moments is not None else (rows.mean(axis=0), None)
     Z = rows - mean
-    L = np.linalg.cholesky(Z.T @ Z / len(rows) if covariance is None else covariance)
-    return solve_triangular(L, Z.T, lower=True, check_finite=False).T, 2.0 * float(np.log(L.diagonal()).sum())
+    L, info = lapack.dpotrf(Z.T @ Z / len(rows) if covariance is None else covariance, lower=1, clean=1)
+    if info != 0:
+        raise np.linalg.LinAlgError("the covariance matrix of the rows is not positive definite")
+    Y, _ = lapack.dtrtrs(L, Z.T, lower=1, overwrite_b=1)  # Z.T: the transposed view of Z, solved in place
+    return Y.T, 2.0 * float(np.log(L.diagonal()).sum())
 
 
 def _frequency_whitened(rows: np.ndarray, frequencies: np.ndarray) -> np.ndarray:

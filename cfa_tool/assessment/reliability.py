@@ -166,14 +166,14 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         # contradictions are reported once, for the factor the items load on directly
         against = member & (K * signs != direction) & (G != 0) & ~higher
     totals = np.einsum("ij,ij->j", K, sigma @ K)
-    omega = np.einsum("ij,ij->j", K, G) ** 2 * np.diag(phi) / totals
+    omega = np.einsum("ij,ij->j", K, G) ** 2 * phi.diagonal() / totals
     omega_total = 1.0 - np.einsum("ij,ij->j", K, theta @ K) / totals
-    sd_lat = np.sqrt(np.clip(np.diag(phi), 1e-300, None))
-    sd_obs = np.sqrt(np.clip(np.diag(sigma), 1e-300, None))
-    corr_lat = phi / np.outer(sd_lat, sd_lat)
+    sd_lat = np.sqrt(np.maximum(phi.diagonal(), 1e-300))
+    sd_obs = np.sqrt(np.maximum(sigma.diagonal(), 1e-300))
+    corr_lat = phi / (sd_lat[:, None] * sd_lat)
     Kd = K * direct  # keys of each first-order factor's own items
     lam = L * sd_lat / sd_obs[:, None]  # standardized loadings (0 where an item does not load)
-    err = direct.T.astype(float) @ (np.diag(theta) / sd_obs**2)  # standardized residual variances, summed
+    err = direct.T.astype(float) @ (theta.diagonal() / sd_obs**2)  # standardized residual variances, summed
     keyed_sum = np.einsum("ij,ij->j", Kd, lam)
     lam_squares = (lam**2).sum(axis=0)
     with np.errstate(divide="ignore", invalid="ignore"):  # 0 / 0 for higher-order factors, which have neither
@@ -183,20 +183,22 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     if S is not None:
         SK = S @ Kd
         keyed_totals = np.einsum("ij,ij->j", Kd, SK)  # k'S k over each factor's own items
-        s_ii = np.diag(S)
+        s_ii = S.diagonal()
         with np.errstate(divide="ignore", invalid="ignore"):
             alpha = np.where(counts > 1, counts / np.maximum(counts - 1, 1) * (1.0 - direct.T @ s_ii / keyed_totals),
                              np.nan)
     first_order = [j for j in range(m) if member[:, j].any() and latent[j] not in not_traits and not higher[j]]
     keying = Keying.SIGNS if declared is None else Keying.DECLARED
+    member_l = [column.nonzero()[0].tolist() for column in member.T]  # each factor's items
+    negative, against_l = (K < 0).tolist(), against.tolist()
     results = []
     for j, name in enumerate(latent):
-        items = np.flatnonzero(member[:, j])
-        if len(items) == 0 or name in not_traits:
+        items = member_l[j]
+        if not items or name in not_traits:
             continue
         names = tuple(observed[i] for i in items)
-        reversed_items = tuple(observed[i] for i in items if K[i, j] < 0)
-        against_items = tuple(observed[i] for i in items if against[i, j])
+        reversed_items = tuple(observed[i] for i in items if negative[i][j])
+        against_items = tuple(observed[i] for i in items if against_l[i][j])
         turned = bool(direction[j] < 0)
         if higher[j]:
             results.append(FactorReliability(name, names, "higher-order", float(omega[j]), float(omega_total[j]),
@@ -206,7 +208,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         alpha_j = mean = sd = None
         item_total: tuple[float, ...] = ()
         if S is not None:
-            own_items = np.flatnonzero(direct[:, j])
+            own_items = direct[:, j].nonzero()[0]
             own_k = K[own_items, j]
             alpha_j = float(alpha[j])
             if sum_scores:
@@ -230,10 +232,10 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     htmt = []
     if S is not None:
         sd_items = np.sqrt(s_ii)
-        R = S / np.outer(sd_items, sd_items)
+        R = S / (sd_items[:, None] * sd_items)
         keyed_r = Kd.T @ R @ Kd  # k_a' R k_b for every pair of factors
         with np.errstate(divide="ignore", invalid="ignore"):  # mean keyed correlation within each factor (each pair once)
-            mono = (np.diag(keyed_r) - direct.T @ np.diag(R)) / (counts * (counts - 1))
+            mono = (keyed_r.diagonal() - direct.T @ R.diagonal()) / (counts * (counts - 1))
         for a_pos, a in enumerate(first_order):
             for b in first_order[a_pos + 1:]:
                 short = [latent[f] for f in (a, b) if counts[f] < 2]

@@ -23,6 +23,8 @@ def clean(value):
         if all(type(v) is float for v in value) and math.isfinite(sum(value)):  # a NaN or infinity makes the sum one
             return list(value)
         return [clean(v) for v in value]
+    if (kind is list or kind is tuple) and all(type(v) in _PLAIN for v in value):  # names, counts: copied as they are
+        return list(value)
     if kind is dict:  # plain values cleaned in place of a call per value (to_dict builds hundreds of these)
         out = {}
         for k, v in value.items():

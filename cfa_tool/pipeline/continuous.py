@@ -22,7 +22,7 @@ from cfa_tool.assessment.modification import ModificationIndices, modification_i
 from cfa_tool.assessment.normality import mardia, whitened_rows
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
-from cfa_tool.assessment.standardized import r_squared, standardize_entries
+from cfa_tool.assessment.standardized import r_squared, standardization, standardize_entries
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, moments_with_gaps
 from cfa_tool.errors import CfaError, OptionError
@@ -201,15 +201,12 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     means = table.mean_structure
     n_total = likelihood.n_total
     values = model.entry_values(theta)
-    codes, rows, cols = table.entry_arrays()
-    group_of = table.group_array()
     standardized = np.empty_like(values)
     factors_standardized = np.empty_like(values)
     mats = [model.matrices(theta, g) for g in range(table.n_groups)]
-    for g in range(table.n_groups):
-        sel = group_of == g
-        standardized[sel], factors_standardized[sel] = standardize_entries(mats[g], codes[sel], rows[sel], cols[sel],
-                                                                           values[sel])
+    for g, (sel, codes, rows, cols, layout) in enumerate(_entry_standardization(model)):
+        standardized[sel], factors_standardized[sel] = standardize_entries(mats[g], codes, rows, cols, values[sel],
+                                                                           layout)
 
     warnings: list[str] = []
     for label, m in groups:
@@ -273,7 +270,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             cov_theta = parameter_covariance(information, n_total)
         inference = wald_inference(values, model.J, cov_theta)
         if options.modification_indices:
-            mis = modification_indices(model, theta, likelihood, exogenous_factors(spec))
+            mis = modification_indices(model, theta, likelihood, exogenous_factors(spec), mats)
     else:
         # a model that is not identified often shows itself by not converging: say so when it is the cause
         evaluation = likelihood.evaluate(theta)
@@ -334,6 +331,22 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                       robust=robust, estimates=estimates, modification_indices=mis, groups=group_results,
                       warnings=warnings, options=options, group_column=group_column, problems=problems,
                       parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels, model=model)
+
+
+def _entry_standardization(model: StructuredModel) -> list:
+    """Per group: (its entries' positions, their codes, rows and columns, their standardization), fixed by the
+    model: laid out at its first fit and kept for its refits."""
+    if "entry standardization" not in model.derived:
+        table = model.table
+        codes, rows, cols = table.entry_arrays()
+        group_of = table.group_array()
+        out = []
+        for g in range(table.n_groups):
+            sel = np.flatnonzero(group_of == g)
+            out.append((sel, codes[sel], rows[sel], cols[sel], standardization(codes[sel], rows[sel], cols[sel], model.p,
+                                                                               model.m)))
+        model.derived["entry standardization"] = out
+    return model.derived["entry standardization"]
 
 
 def _frequency_weights(gm: GroupMoments) -> np.ndarray | None:
