@@ -49,6 +49,7 @@ def _worker_threads(_task) -> tuple[int, tuple[int, ...]]:
 
     from cfa_tool.numerics.threads import blas_libraries
 
+    time.sleep(0.05)  # long enough that every worker of the pool takes some of the tasks
     return os.getpid(), tuple(lib.num_threads for lib in blas_libraries())
 
 
