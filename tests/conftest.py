@@ -58,6 +58,19 @@ def simulate_cfa(loadings: np.ndarray, phi: np.ndarray, theta: np.ndarray, n: in
     return pd.DataFrame(data, columns=names)
 
 
+FOUR_FACTORS = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\nfactor c: y7, y8, y9\nfactor d: y10, y11, y12\n"
+
+
+def four_factor_rows(within: float, seed: int, n: int = 500) -> pd.DataFrame:
+    """Rows of FOUR_FACTORS (items y1-y12, loadings .7, residual variances .51): a and b correlate .6, c and d
+    ``within``, the pairs .3 with each other (invented population values; a test helper)."""
+    L = np.zeros((12, 4))
+    for k in range(4):
+        L[3 * k:3 * k + 3, k] = 0.7
+    phi = np.array([[1.0, 0.6, 0.3, 0.3], [0.6, 1.0, 0.3, 0.3], [0.3, 0.3, 1.0, within], [0.3, 0.3, within, 1.0]])
+    return simulate_cfa(L, phi, np.diag(np.full(12, 0.51)), n, seed)
+
+
 def single_group(model, data):
     """A model and its variables' single-group sample moments, read as cfa_tool.fit reads them."""
     from cfa_tool.data.moments import sample_moments

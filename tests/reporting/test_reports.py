@@ -387,16 +387,10 @@ def test_paragraph_names_second_order_loadings_and_a_single_correlation(hs_data)
 def test_methods_paragraph_of_two_higher_order_factors():
     # two higher-order factors over two first-order factors each (new-user trial 6, U7): one clause for both,
     # without the doubled comma, and their correlation named as theirs (invented population values)
-    from tests.conftest import simulate_cfa
+    from tests.conftest import FOUR_FACTORS, four_factor_rows
 
-    L = np.zeros((12, 4))
-    for k in range(4):
-        L[3 * k:3 * k + 3, k] = 0.7
-    phi = np.array([[1.0, 0.6, 0.3, 0.3], [0.6, 1.0, 0.3, 0.3], [0.3, 0.3, 1.0, 0.6], [0.3, 0.3, 0.6, 1.0]])
-    rows = simulate_cfa(L, phi, np.diag(np.full(12, 0.51)), 500, 7)
-    rows.columns = [f"y{i}" for i in range(1, 13)]
-    model = ("factor a: y1, y2, y3\nfactor b: y4, y5, y6\nfactor c: y7, y8, y9\nfactor d: y10, y11, y12\n"
-             "factor e: a, b\nfactor f: c, d\n")
+    rows = four_factor_rows(0.6, 7)
+    model = FOUR_FACTORS + "factor e: a, b\nfactor f: c, d\n"
     result = cfa_tool.fit(model, rows)
     text = methods_paragraph(result)
     # and a note that each is identified only through the other (Kenny 1979 on two-indicator factors)

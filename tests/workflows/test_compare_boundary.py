@@ -120,13 +120,10 @@ def test_factors_merged_under_a_higher_order_factor_put_their_disturbances_on_th
     # the merged factors correlate 1 only when both disturbance variances are 0, two parameters on the boundary
     # (Stoel et al. 2006), so no 50:50 mixture (new-user trial 6, U5); the four-factor model against the merge keeps
     # its one parameter (the correlation of two factors with no disturbances).  Population: invented values.
-    L = np.zeros((12, 4))
-    for k in range(4):
-        L[3 * k:3 * k + 3, k] = 0.7
-    phi = np.array([[1.0, 0.6, 0.3, 0.3], [0.6, 1.0, 0.3, 0.3], [0.3, 0.3, 1.0, 0.8], [0.3, 0.3, 0.8, 1.0]])
-    rows = simulate_cfa(L, phi, np.diag(np.full(12, 0.51)), 500, 20261203)
-    rows.columns = [f"y{i}" for i in range(1, 13)]
-    first = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\nfactor c: y7, y8, y9\nfactor d: y10, y11, y12\n"
+    from tests.conftest import FOUR_FACTORS, four_factor_rows
+
+    rows = four_factor_rows(0.8, 20261203)
+    first = FOUR_FACTORS
     second = first + "factor e: a, b\nfactor f: c, d\n"
     merged = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\nfactor cd: y7, y8, y9, y10, y11, y12\n"
     comparison = compare([merged, second, first], rows)
