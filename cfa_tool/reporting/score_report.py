@@ -65,6 +65,21 @@ def caution_lines(result) -> list[str]:
     return lines
 
 
+def _one_item_sentence(fit) -> str:
+    """Factors measured by one item, whose error variance the model must fix: their scores' determinacy,
+    reliability and precision follow from that fixed value, not from the data (Bollen 1989, ch. 7)."""
+    items: dict[str, list[str]] = {}
+    for e in fit.estimates:
+        if e.kind == "loading" and e.variables[1] in fit.observed:
+            items.setdefault(e.variables[0], []).append(e.variables[1])
+    one = sorted({f for f, xs in items.items() if len(set(xs)) == 1})
+    if not one:
+        return ""
+    return (f" {', '.join(one)}: measured by one item, whose error variance the model fixes, so "
+            f"{'its' if len(one) == 1 else 'their'} determinacy, reliability and precision restate that fixed value "
+            f"(Bollen 1989, ch. 7), not evidence from the data.")
+
+
 def quality_table(result, k: int) -> ReportTable:
     q = result.quality[k]
     ordinal = not hasattr(q, "methods")
@@ -84,7 +99,8 @@ def quality_table(result, k: int) -> ReportTable:
                 "reliability of each method's scores (Corr.-preserving: correlation-preserving scores): the squared correlation of "
                 "the score with its factor (Beauducel 2011). Values "
                 "under the fitted model with every item answered; methods marked with * are written to the file: "
-                + ", ".join(METHOD_LABELS[m] + ("*" if m in result.methods else "") for m in LINEAR_METHODS) + ".")
+                + ", ".join(METHOD_LABELS[m] + ("*" if m in result.methods else "") for m in LINEAR_METHODS) + "."
+                + _one_item_sentence(result.fit))
     title = "Quality of the scores" + _where(q) + ("" if ordinal else ": determinacy, and reliability by method")
     return _table(f"score_quality_{k}", title, cols, rows, note,
                   flagged=tuple(i for i, low in enumerate(q.low_determinacy) if low))
@@ -112,7 +128,7 @@ def precision_table(result, k: int) -> ReportTable | None:
             f"the _se column of the file). SE: the typical distance of a score from the person's factor value; 95% band: "
             f"±1.96 SE about a score (normal approximation); real difference: the smallest difference between two "
             f"people's scores that exceeds chance at the 5% level, 1.96 × √2 × SE (Gulliksen 1950; recalled from "
-            f"memory, common practice). SDs: divided by the factor's standard deviation.")
+            f"memory, common practice). SDs: divided by the factor's standard deviation." + _one_item_sentence(result.fit))
     return _table(f"score_precision_{k}", "How precise is one person's score?" + _where(q), cols, rows, note,
                   values=([c for c, _ in cols], values))
 

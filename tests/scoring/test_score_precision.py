@@ -48,3 +48,17 @@ def test_no_precision_caution_when_the_scores_are_reliable_enough():
     (p,) = result.quality[0].precision(ScoreMethod.REGRESSION)
     assert p.reliability > 0.9
     assert not [c for c in scores_report(result).cautions if "decisions about individuals usually need" in c]
+
+
+def test_a_factor_of_one_item_is_said_to_restate_its_fixed_error_variance(hs_data):
+    # one item with its error variance fixed at 0 (hostile trial 6, H6): determinacy 1 and SE 0 are the assumption,
+    # not evidence; both tables say so (Bollen 1989, ch. 7, on single indicators)
+    result = cfa_tool.scores("factor visual: x1\nfix variance(x1) = 0\nfactor textual: x4, x5, x6\n", hs_data)
+    report = scores_report(result)
+    for title in ("Quality of the scores", "How precise"):
+        table = next(t for t in report.tables if t.title.startswith(title))
+        assert ("visual: measured by one item, whose error variance the model fixes, so its determinacy, "
+                "reliability and precision restate that fixed value") in table.note
+        assert "textual: measured" not in table.note
+    plain = scores_report(cfa_tool.scores("factor textual: x4, x5, x6\n", hs_data))
+    assert not any("measured by one item" in (t.note or "") for t in plain.tables)
