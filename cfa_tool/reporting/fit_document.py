@@ -74,12 +74,12 @@ def fit_report(result) -> Report:
     as written and the cautions."""
     d = result.data
     lines = (f"Model file: {result.model_source}", f"Data: {d.source}; {T.rows_phrase(d, getattr(result, 'design', None))}", T.status_line(result))
-    warnings = tuple(result.warnings) + (() if result.converged else (NOT_CONVERGED,))
+    warnings = (tuple(result.warnings) + _two_factor_higher_order(result)
+                + (() if result.converged else (NOT_CONVERGED,)))
     figures = tuple(Figure("Path diagram of the fitted model" + ("" if g.label is None else f", group {g.label}")
                            + " (standardized values)", partial(_path_diagram, result, k))
                     for k, g in enumerate(result.groups))
     left_out = T.matrices_left_out(result)
-    notes = (() if left_out is None else (left_out,)) + _two_factor_higher_order(result)
     return Report(ResultKind.FIT, result.model_name, T.problem_notice(result), lines, tuple(fit_tables(result)),
-                  notes, (HIGH_STAKES_NOTE,), methods_paragraph(result), figures, T.problem_table(result), warnings,
+                  () if left_out is None else (left_out,), (HIGH_STAKES_NOTE,), methods_paragraph(result), figures, T.problem_table(result), warnings,
                   (Listing("Model", result.model_text),))

@@ -397,6 +397,8 @@ def test_methods_paragraph_of_two_higher_order_factors():
     said = " ".join(result.summary().split())
     assert ("Higher-order factors over two factors (e explains a and b; f explains c and d): each is identified only "
             "through its covariance with another higher-order factor") in said
+    # with the notes on the estimation at the top, before the methods paragraph (re-check: it came last)
+    assert said.index("Higher-order factors over two factors") < said.index("A confirmatory factor analysis")
     assert ("with higher-order factors e (explaining a and b) and f (explaining c and d), was estimated" in text), text
     assert ",," not in text
     assert "The standardized loadings of the first-order factors on the higher-order factors ranged from" in text
