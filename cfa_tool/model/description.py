@@ -125,10 +125,11 @@ def parameter_words(kind: str, names: tuple[str, ...], group: str | None = None,
     return ("the " if article else "") + text + (f" in group {group}" if group is not None else "")
 
 
-def label_words(label: str, article: bool = True) -> str:
-    """A machine label ('residual_variance(x9) [north]') in words ('the residual variance of x9 in group north')."""
+def label_words(label: str, article: bool = True, observed: tuple[str, ...] | frozenset | None = None) -> str:
+    """A machine label ('residual_variance(x9) [north]') in words ('the residual variance of x9 in group north');
+    ``observed``: the model's items, for labels in a model file's words ('variance(x9)')."""
     kind, names, group = split_label(label)
-    return parameter_words(kind, names, group, article=article)
+    return parameter_words(kind, names, group, observed=observed, article=article)
 
 
 def _ref_dict(ref: tuple) -> dict:

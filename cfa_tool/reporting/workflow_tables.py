@@ -776,12 +776,13 @@ def montecarlo_report(result) -> Report:
              ] + _ordinal_power_lines(result)
     if result.defaulted:
         lines.append("Population values not given in the model file took defaults: "
-                     + ", ".join(label_words(label) for label in result.defaulted))
+                     + ", ".join(label_words(label, observed=result.observed or None) for label in result.defaulted))
     lines += not_carried_line(result.not_carried)
     # what decides the plan first: power, then whether intervals and estimates can be trusted at this N
-    rows = [[label_words(p.label, article=False), unit(p.power, 2), f"{100 * p.coverage:.1f}%",
+    rows = [[label_words(p.label, article=False, observed=result.observed or None), unit(p.power, 2), f"{100 * p.coverage:.1f}%",
              _percent(p.relative_bias), _percent(p.se_bias)] for p in result.parameters]
-    values = [[label_words(p.label, article=False), p.power, p.coverage, p.relative_bias, p.se_bias] for p in result.parameters]
+    values = [[label_words(p.label, article=False, observed=result.observed or None), p.power, p.coverage, p.relative_bias,
+               p.se_bias] for p in result.parameters]
     table = _table("parameters", "Per parameter", [("Parameter", "l"), ("Power", "r"), ("Coverage", "r"),
                                                    ("Estimate bias %", "r"), ("SE bias %", "r")], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha {unit(result.alpha, 2)}; "
@@ -805,9 +806,9 @@ def power_curve_report(curve) -> Report:
                                                            for r in curve.results) + " of the converged replications."]
     if first.defaulted:
         lines.append("Population values not given in the model file took defaults: "
-                     + ", ".join(label_words(label) for label in first.defaulted))
+                     + ", ".join(label_words(label, observed=first.observed or None) for label in first.defaulted))
     lines += not_carried_line(first.not_carried)
-    names = [label_words(p.label, article=False) for p in first.parameters]
+    names = [label_words(p.label, article=False, observed=first.observed or None) for p in first.parameters]
     rows = [[name, *(unit(r.parameters[k].power, 2) for r in curve.results)] for k, name in enumerate(names)]
     values = [[name, *(r.parameters[k].power for r in curve.results)] for k, name in enumerate(names)]
     table = _table("power_by_sample_size", "Power per parameter and sample size",

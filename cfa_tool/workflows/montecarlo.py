@@ -60,6 +60,8 @@ class MonteCarloPower(Presentable):
     inadmissible: int = 0
     #: what the earlier fit's data had that the simulated rows do not (simulation.Population.not_carried)
     not_carried: tuple[str, ...] = ()
+    #: the model's items, which tell an item's residual variance from a factor's variance in the labels
+    observed: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         return {"n_obs": self.n_obs, "replications": self.replications, "converged": self.converged,
@@ -187,7 +189,8 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
         powers.append(MonteCarloPower(n, replications, len(ok), alpha, seed,
                                       _parameter_rows(table.free_labels, np.array(truth), thetas, ses, alpha), defaulted,
                                       weighting.phrase, float(np.mean([d.p_value < alpha for d in ok])),
-                                      _negative_variances(thetas, variances), population.not_carried))
+                                      _negative_variances(thetas, variances), population.not_carried,
+                                      tuple(population.spec.observed_names)))
     return powers[0] if len(sizes) == 1 else PowerCurve(tuple(powers))
 
 
@@ -207,7 +210,8 @@ def _summary(population, n_obs: int, replications: int, seed: int, alpha: float,
     rows = _parameter_rows(table.free_labels, population.theta, thetas, ses, alpha)
     variances = sorted({p.terms[0][0] for p in table.parameters if p.kind in VARIANCE_KINDS and len(p.terms) == 1})
     return MonteCarloPower(n_obs, replications, len(ok), alpha, seed, rows, population.defaulted,
-                           inadmissible=_negative_variances(thetas, variances), not_carried=population.not_carried)
+                           inadmissible=_negative_variances(thetas, variances), not_carried=population.not_carried,
+                           observed=tuple(population.spec.observed_names))
 
 
 #: the parameters whose negative estimate makes a solution inadmissible (a Heywood case)

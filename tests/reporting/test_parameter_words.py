@@ -134,3 +134,13 @@ def test_the_power_simulation_tables_name_parameters_in_words():
     assert "took defaults: the loading of y7 on g" in text
     assert not MACHINE.search(text) and "loading(" not in text and "covariance(" not in text
     assert result.to_dict()["parameters"][0]["label"] == "loading(f, y2)"  # the JSON keeps the key
+    # knowing the model's items, an item's residual variance is told from a factor's variance (re-check 6: both
+    # read 'variance of ...'), in the table and in the defaults line
+    rows = tuple(ParameterPower(label, 0.5, 0.5, 0.0, 0.1, 0.1, 0.95, 0.9)
+                 for label in ("variance(y3)", "variance(f)", "covariance(f, g)", "covariance(y2, y3)"))
+    result = MonteCarloPower(200, 500, 500, 0.05, 1, rows, ("variance(y3)",), observed=("y2", "y3", "y7"))
+    report = montecarlo_report(result)
+    assert [row[0] for row in report.tables[0].rows] == ["residual variance of y3", "variance of factor f",
+                                                         "covariance of factors f and g",
+                                                         "residual covariance of y2 and y3"]
+    assert "took defaults: the residual variance of y3" in _plain(report_text(report, 100))

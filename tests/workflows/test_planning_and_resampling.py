@@ -156,7 +156,7 @@ def test_power_by_sample_size_agrees_with_the_analytic_values():
     trust = next(t for t in power_curve_report(curve).tables if t.key == "coverage_and_bias_by_sample_size")
     heads, values = trust.value_columns, trust.values
     assert list(heads[1:4]) == ["Coverage at N = 100", "Estimate bias % at N = 100", "SE bias % at N = 100"]
-    row = next(v for v in values if v[0] == "covariance of f and g")
+    row = next(v for v in values if v[0] == "covariance of factors f and g")
     last = [p for p in curve.results[1].parameters if p.label == "covariance(f, g)"][0]
     assert list(row[4:]) == [last.coverage, last.relative_bias, last.se_bias]
     # one size in a list is the single-size result, seeds included
