@@ -5,6 +5,7 @@ every writer draws.  Problems of a solution come first; the cautions come last."
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
@@ -15,7 +16,7 @@ from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import _parameter, comparison_paragraph, design_sentence, invariance_paragraph
 from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit, word_list
 from cfa_tool.language.spec import equality_words
-from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, _table
+from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
 CHANGE_GUIDES = ("Changes in CFI and RMSEA are read against common-practice guides (a fall in CFI of more than .010, "
@@ -787,12 +788,20 @@ def montecarlo_report(result) -> Report:
                                                    ("Estimate bias %", "r"), ("SE bias %", "r")], rows,
                    f"Power: share of replications in which the parameter differs from zero at alpha {unit(result.alpha, 2)}; "
                    f"coverage: share of 95% Wald intervals that hold the population value (nominal 95%); bias: mean "
-                   f"estimate (or mean SE) against the population value (or the SD of the estimates). Population values, "
-                   f"mean estimates and SDs are in the JSON result.",
+                   f"estimate (or mean SE) against the population value (or the SD of the estimates). Population values "
+                   f"are in the table below; mean estimates and SDs in the JSON result.",
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
-                  None, tuple(lines), (table,), warnings=few_replications(result.replications))
+                  None, tuple(lines), (table, *_population_of(result)), warnings=few_replications(result.replications))
+
+
+def _population_of(result) -> tuple[ReportTable, ...]:
+    """The table of the population a power simulation drew from (none for a result read back without it)."""
+    if getattr(result, "population", None) is None:
+        return ()
+    line, table = population_parts(result.population)
+    return (replace(table, note=f"{line} {table.note}"),)
 
 
 def power_curve_report(curve) -> Report:
@@ -831,7 +840,8 @@ def power_curve_report(curve) -> Report:
                    "values, mean estimates and SDs are in the JSON result.",
                    values=([h for h, _ in heads], values))
     return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {first.replications} replications "
-                                               f"per size (seed {first.seed})", None, tuple(lines), (table, trust),
+                                               f"per size (seed {first.seed})", None, tuple(lines),
+                  (table, trust, *_population_of(first)),
                   warnings=few_replications(first.replications))
 
 
@@ -840,9 +850,24 @@ def power_curve_report(curve) -> Report:
 def population_report(simulated) -> Report:
     """The population a simulation drew from: each free parameter, in the model's units and standardized, and
     whether the model file gave it or it took the default."""
+    population = simulated.population
+    line, table = population_parts(population)
+    frame = simulated.frame
+    cut = population.ordinal_items
+    made = (f"{len(frame)} rows of {frame.shape[1]} variables (seed {simulated.seed})"
+            + (f", ordinal with {simulated.categories} categories" if simulated.categories else "")
+            + (f", {len(cut)} ordinal items cut at the fitted thresholds (answers 1 to k)"
+               if cut and not simulated.categories else "")
+            + (f", {100 * simulated.missing:g}% of answers removed completely at random" if simulated.missing else "") + ".")
+    carried = [] if simulated.missing else not_carried_line(population.not_carried)  # --missing gives gaps itself
+    return Report(ResultKind.SIMULATE, "Simulated data", None, (made, line, *carried), (table,))
+
+
+def population_parts(population) -> tuple[str, ReportTable]:
+    """Where a population's values come from (a sentence) and the table of every value, fixed ones included: what
+    simulate and power-simulation drew their samples from."""
     from cfa_tool.workflows.simulation import ValueSource
 
-    population = simulated.population
     entries = population.values()
     if population.fitted_from is not None:
         line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}; the items' means are "
@@ -861,13 +886,6 @@ def population_report(simulated) -> Report:
     else:
         line = ("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances "
                 "1) and converted to the model's scaling; values from 'start' statements replace them.")
-    frame = simulated.frame
-    cut = population.ordinal_items
-    made = (f"{len(frame)} rows of {frame.shape[1]} variables (seed {simulated.seed})"
-            + (f", ordinal with {simulated.categories} categories" if simulated.categories else "")
-            + (f", {len(cut)} ordinal items cut at the fitted thresholds (answers 1 to k)"
-               if cut and not simulated.categories else "")
-            + (f", {100 * simulated.missing:g}% of answers removed completely at random" if simulated.missing else "") + ".")
     rows = [[f"{v['kind'].replace('_', ' ')} {', '.join(v['variables'])}", num(v["value"]), num(v["standardized"]),
              v["from"]] for v in entries]
     values = [[v["kind"], ", ".join(v["variables"]), v["value"], v["standardized"], v["from"]] for v in entries]
@@ -879,8 +897,7 @@ def population_report(simulated) -> Report:
     table = _table("population", "Population values used", [("Parameter", "l"), ("Value", "r"), ("Standardized", "r"),
                                                              ("From", "l")], rows, words,
                    values=(["Kind", "Variables", "Value", "Standardized", "From"], values))
-    carried = [] if simulated.missing else not_carried_line(population.not_carried)  # --missing gives gaps itself
-    return Report(ResultKind.SIMULATE, "Simulated data", None, (made, line, *carried), (table,))
+    return line, table
 
 
 # ---------------------------------------------------------------- check

@@ -8,7 +8,7 @@ p < alpha); plus the convergence rate (Muthen & Muthen 2002).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Sequence
 
 import numpy as np
@@ -62,11 +62,14 @@ class MonteCarloPower(Presentable):
     not_carried: tuple[str, ...] = ()
     #: the model's items, which tell an item's residual variance from a factor's variance in the labels
     observed: tuple[str, ...] = ()
+    #: the population the samples were drawn from (simulation.Population): every value, fixed ones included
+    population: object = field(default=None, compare=False)
 
     def to_dict(self) -> dict:
         return {"n_obs": self.n_obs, "replications": self.replications, "converged": self.converged,
                 "convergence_rate": self.converged / self.replications, "alpha": self.alpha, "seed": self.seed,
                 "parameters": [p.to_dict() for p in self.parameters], "population_defaults": list(self.defaulted),
+                "population": self.population.values() if self.population is not None else None,
                 "ordinal_items_fitted_by": self.ordinal, "model_test_rejection_rate": self.model_rejected,
                 "inadmissible": self.inadmissible, "not_carried_over": list(self.not_carried)}
 
@@ -190,7 +193,7 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
                                       _parameter_rows(table.free_labels, np.array(truth), thetas, ses, alpha), defaulted,
                                       weighting.phrase, float(np.mean([d.p_value < alpha for d in ok])),
                                       _negative_variances(thetas, variances), population.not_carried,
-                                      tuple(population.spec.observed_names)))
+                                      tuple(population.spec.observed_names), population))
     return powers[0] if len(sizes) == 1 else PowerCurve(tuple(powers))
 
 
@@ -211,7 +214,7 @@ def _summary(population, n_obs: int, replications: int, seed: int, alpha: float,
     variances = sorted({p.terms[0][0] for p in table.parameters if p.kind in VARIANCE_KINDS and len(p.terms) == 1})
     return MonteCarloPower(n_obs, replications, len(ok), alpha, seed, rows, population.defaulted,
                            inadmissible=_negative_variances(thetas, variances), not_carried=population.not_carried,
-                           observed=tuple(population.spec.observed_names))
+                           observed=tuple(population.spec.observed_names), population=population)
 
 
 #: the parameters whose negative estimate makes a solution inadmissible (a Heywood case)

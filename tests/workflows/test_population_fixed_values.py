@@ -78,6 +78,25 @@ def test_the_population_table_lists_fixed_values_and_says_where_each_came_from(t
     assert "fix = a 'fix' statement" in words
 
 
+@pytest.mark.parametrize("sizes", ["200", "100,200"])
+def test_power_simulation_shows_the_population_it_drew_from(tmp_path, capsys, sizes):
+    # re-check 6: the fixed loading .8 and residual variance .3, and the defaults beside them, were shown nowhere in
+    # power-simulation's report or JSON: the population table of simulate, one builder for both
+    model = tmp_path / "fx.cfa"
+    model.write_text("factor f1: a1, a2, a3\nfix loading(f1, a3) = 0.8\nfix variance(a2) = 0.3\n")
+    saved = tmp_path / "power.json"
+    code, out, err = _run(["power-simulation", model, "--n", sizes, "--replications", 10, "--workers", 1,
+                           "--json", saved], capsys)
+    assert code == 0, err
+    words = " ".join(out.split())
+    assert "Population values used" in words and "residual variance a2 0.300 0.308 fix" in words
+    assert "Values fixed in the model file hold as written" in words
+    result = json.loads(saved.read_text())
+    first = result["by_sample_size"][0] if "by_sample_size" in result else result
+    population = {(v["kind"], tuple(v["variables"])): v for v in first["population"]}
+    assert population[("loading", ("f1", "a3"))]["value"] == 0.8 and population[("loading", ("f1", "a3"))]["from"] == "fix"
+
+
 def test_values_that_set_a_factors_scale_are_listed(tmp_path, capsys):
     model = tmp_path / "m.cfa"
     model.write_text("factor f1: a1, a2, a3\n")
