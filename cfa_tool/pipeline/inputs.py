@@ -96,6 +96,13 @@ def missing_codes_option(codes) -> tuple[float, ...]:
     return tuple(out)
 
 
+def of_summary_statistics(result, moments, notes) -> object:
+    """A fit of summary statistics with what every view says of them: the reading notes first among the warnings,
+    the matrix analysed and what the file did not give (means, standard deviations)."""
+    return replace(result, warnings=tuple(notes) + result.warnings,
+                   data=replace(result.data, not_given=moments.not_given, analysed=moments.analysed))
+
+
 def load_frame(data: pd.DataFrame | str | Path, sheet: str | None = None,
                missing_codes: tuple[float, ...] = ()) -> tuple[pd.DataFrame, str]:
     loaded = load_data(data, sheet, missing_codes)
@@ -302,9 +309,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             raise OptionError("summary statistics allow only the normal-theory test: robust tests and standard errors "
                               "need the rows of answers (--robust cannot apply)")
         result = converged(fit_moments(spec, moments, replace(fit_options, diagnostics=False)))
-        result = replace(result, warnings=tuple(notes) + result.warnings,
-                         data=replace(result.data, not_given=moments.not_given, analysed=moments.analysed))
-        return _described(result, spec, None)
+        return _described(of_summary_statistics(result, moments, notes), spec, None)
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,

@@ -310,7 +310,7 @@ def _sample_phrase(result) -> str:
     return text
 
 
-def _matrix_sentence(result) -> str:
+def _matrix_sentence(result, subject: str = "The model was") -> str:
     """For a fit of summary statistics: which matrix was analysed instead of rows of answers ('' for rows), and,
     for correlations without standard deviations, what that means for the estimates (Cudeck 1989)."""
     from cfa_tool.data.summary_stats import AnalysedMatrix, NotGiven
@@ -318,7 +318,7 @@ def _matrix_sentence(result) -> str:
     analysed = getattr(result.data, "analysed", None)
     if analysed is None:
         return ""
-    text = (f"The model was fitted to summary statistics, not to rows of answers: {analysed.value}, with N = "
+    text = (f"{subject} fitted to summary statistics, not to rows of answers: {analysed.value}, with N = "
             f"{result.n_obs} as given with the matrix")
     text += "" if NotGiven.MEANS in result.data.not_given else " (and the items' means)"
     if analysed is AnalysedMatrix.CORRELATION:
@@ -523,8 +523,12 @@ def comparison_paragraph(comparison) -> str:
         of = f"of {_count(counts[0], 'indicator')} each, not all the same items,"
     groups = (f" in {_count(len(first.groups), 'group')} defined by {first.group_column}"
               f" ({_list([str(g.label) for g in first.groups])})" if first.multigroup else "")
-    parts = [f"{_capital(_count(len(names), 'model'))} {of} were compared on the same rows "
+    matrix = _matrix_sentence(first, "The models were")
+    same = "summary statistics" if matrix else "rows"
+    parts = [f"{_capital(_count(len(names), 'model'))} {of} were compared on the same {same} "
              f"({_comparison_rows(comparison)}){groups}, each estimated by {_estimator_phrase(first)}."]
+    if matrix:  # summary statistics: said once, right after what was compared
+        parts.append(matrix)
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
     design = getattr(first, "design", None)
     if design is not None:

@@ -187,6 +187,9 @@ def comparison_report(comparison) -> Report:
         how = ("every answer used: each correlation from the rows that answered both items" if pairwise else
                "by full-information ML, rows with missing answers included")
         rows_line = f"All models fitted to the same {comparison.n_obs} rows, {how} ({left})."
+    elif getattr(comparison.results[0].data, "analysed", None) is not None:  # summary statistics: no rows
+        rows_line = (f"All models fitted to the same summary statistics "
+                     f"({comparison.results[0].data.analysed.value}), N = {comparison.n_obs} as given in the file.")
     else:
         rows_line = (f"All models fitted to the same {comparison.n_obs} rows ({comparison.rows_dropped} rows with a missing "
                      f"answer on any model's variables left out).")

@@ -9,6 +9,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.pipeline.inputs import (_described, choose_missing_handling, design_test, load_spec, make_options, moments_for,
+                                      of_summary_statistics,
                                       odd_value_problems, odd_values_named,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_row_options, summary_source, with_design)
@@ -201,14 +202,16 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
         raise OptionError("groups need raw data; a summary-statistics file describes one group")
     if fit_options.test is not FitTest.NORMAL:
         raise OptionError("summary statistics allow only the normal-theory test")
-    moments, _ = read_summary_file(path)
+    moments, notes = read_summary_file(path)
     results = []
     for spec, name in zip(specs, names):
         check_columns(spec, list(moments.names), moments.source)
         with estimation_of(f"model {name}"):
-            results.append(_described(fit_moments(spec, moments, fit_options), spec, None))
+            results.append(_described(of_summary_statistics(fit_moments(spec, moments, fit_options), moments, ()),
+                                      spec, None))
     tests, not_nested = _pairwise_tests(specs, names, results, [[(None, moments)]] * len(specs))
-    return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), moments.n_obs, 0)
+    return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), moments.n_obs, 0,
+                      notes=tuple(notes))
 
 
 def _pairwise_tests(specs, names, results, data_groups) -> tuple[list[DifferenceTest], list[NotNested]]:

@@ -100,3 +100,22 @@ def test_a_saved_fit_of_summary_statistics_without_means_is_still_read(tmp_path,
     rows.write_text("x1,x2,x3,x4,x5,x6\n1,2,3,4,5,6\n2,3,4,5,6,7\n")
     code, _, err = _run(["scores", model, "--data", rows, "--from-fit", saved, "--output", tmp_path / "s.csv"], capsys)
     assert code == 2 and "without the items' means" in err
+
+
+def test_compare_of_summary_statistics_says_so(tmp_path, model, capsys):
+    # re-check 6: compare of a correlation matrix without SDs said "All models fitted to the same 301 rows" and its
+    # paragraph read as if rows of answers were analysed, without the standard-deviation-units caution
+    stats = tmp_path / "hs.stats"
+    stats.write_text("correlation,x1,x2,x3,x4,x5,x6\n" + MATRIX)
+    one = tmp_path / "one.cfa"
+    one.write_text("factor g: x1, x2, x3, x4, x5, x6\n")
+    code, out, err = _run(["compare", model, one, "--data", stats], capsys)
+    assert code == 0, err
+    words = _words(out)
+    assert ("All models fitted to the same summary statistics (a correlation matrix without standard deviations), "
+            "N = 301 as given in the file.") in words
+    assert "same 301 rows" not in words
+    assert words.index("were compared on the same summary statistics (N = 301)") < words.index(
+        "The models were fitted to summary statistics, not to rows of answers: a correlation matrix without standard "
+        "deviations") < words.index("Model 1 (six) had six indicators")
+    assert "standard errors are only approximate (Cudeck, 1989)" in words
