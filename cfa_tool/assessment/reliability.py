@@ -77,11 +77,14 @@ class FactorReliability:
     # the factor points against the keyed direction of its items: most items not declared reversed load
     # negatively (a 'reversed' statement), or, without one, most items load against the marker's fixed sign
     points_against: bool = False
+    # half of the factor's items load each way: no majority gives its direction
+    evenly_split: bool = False
 
     def to_dict(self) -> dict:
         d = dict(vars(self))  # every field is a number, a word or a tuple of them, converted below
-        if not self.points_against:
-            del d["points_against"]  # written only when it warns
+        for flag in ("points_against", "evenly_split"):
+            if not getattr(self, flag):
+                del d[flag]  # written only when it warns
         d["items"] = list(self.items)
         d["reversed"] = list(self.reversed)
         d["keying"] = self.keying.value
@@ -105,7 +108,7 @@ class Htmt:
 
 
 def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...],
-              declared: Collection[str] | None) -> tuple[np.ndarray, np.ndarray]:
+              declared: Collection[str] | None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """The one rule that keys the items of every keyed sum (reliability here, sum scores in scoring/quality.py):
     (K, direction).  K (p, m): item i's key for factor j, 0 where ``member`` (the items that measure j, directly
     or through the factors below it) is False.
@@ -114,13 +117,14 @@ def item_keys(G: np.ndarray, member: np.ndarray, observed: tuple[str, ...],
     declared item, +1 otherwise, whatever the loadings' signs.  Without one they follow the signs of the total
     loadings G: an item whose loading has the sign opposite to most of its factor's items (ties broken by the
     sum of the loadings) is reversed.  ``direction`` (m): +1 where the factor points the keyed way (most keyed
-    items load positively), -1 where it points against its keys."""
+    items load positively), -1 where it points against its keys; ``split`` (m): True where half of a factor's
+    items point each way, so that no majority gives its direction."""
     signs = np.where(G < 0, -1.0, 1.0)
     keys = np.array([-1.0 if declared is not None and x in declared else 1.0 for x in observed])[:, None]
     vote, tie_break = (keys * signs * member).sum(axis=0), (keys * G * member).sum(axis=0)
     direction = np.where(np.where(vote == 0, tie_break, vote) < 0, -1.0, 1.0)  # each factor's majority
     K = (signs * direction if declared is None else keys) * member
-    return K, direction
+    return K, direction, (vote == 0) & member.any(axis=0)
 
 
 def cronbach_alpha(S: np.ndarray, keys: np.ndarray | None = None) -> float:
@@ -159,7 +163,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     direct = np.abs(L) > 0
     higher = np.abs(mats.B).sum(axis=0) > 0
     signs = np.where(G < 0, -1.0, 1.0)
-    K, direction = item_keys(G, member, observed, declared)
+    K, direction, split = item_keys(G, member, observed, declared)
     if declared is None:
         against = np.zeros((p, m), dtype=bool)
     else:
@@ -199,11 +203,12 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         names = tuple(observed[i] for i in items)
         reversed_items = tuple(observed[i] for i in items if negative[i][j])
         against_items = tuple(observed[i] for i in items if against_l[i][j])
-        turned = bool(direction[j] < 0)
+        turned, tied = bool(direction[j] < 0), bool(split[j])
         if higher[j]:
             results.append(FactorReliability(name, names, "higher-order", float(omega[j]), float(omega_total[j]),
                                              float(omega[j]), None, None, None, None, None, reversed_items, keying,
-                                             None, None, (), against_items, points_against=turned))
+                                             None, None, (), against_items, points_against=turned,
+                                             evenly_split=tied))
             continue
         alpha_j = mean = sd = None
         item_total: tuple[float, ...] = ()
@@ -228,7 +233,8 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
             holds = bool(np.sqrt(ave[j]) > largest)
         results.append(FactorReliability(name, names, "first-order", float(omega[j]), float(omega_total[j]), None,
                                          float(cr[j]), float(ave[j]), alpha_j, largest, holds, reversed_items, keying,
-                                         mean, sd, item_total, against_items, points_against=turned))
+                                         mean, sd, item_total, against_items, points_against=turned,
+                                         evenly_split=tied))
     htmt = []
     if S is not None:
         sd_items = np.sqrt(s_ii)
@@ -290,11 +296,28 @@ def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") 
         if r.points_against:
             out.append(_turned_warning(r, prefix))
             continue
+        if r.evenly_split:
+            out.append(_split_warning(r, prefix))
+            continue
         if r.against_keying:
             names = ", ".join(f"'{x}'" for x in r.against_keying)
             out.append(f"{prefix}factor '{r.factor}': the loadings of {names} point the other way from what the "
                        f"'reversed' statement implies; check the keying and how the answers were coded")
     return out
+
+
+def _split_warning(r: FactorReliability, prefix: str) -> str:
+    """The caution for a factor half of whose items load each way (``evenly_split``)."""
+    rest = [x for x in r.items if x not in r.reversed]
+    if r.keying is Keying.DECLARED:
+        return (f"{prefix}factor '{r.factor}': half of its items load against the keying the 'reversed' statement "
+                f"declares, so no majority tells which way it points; check the statement and how the answers "
+                f"were coded")
+    return (f"{prefix}factor '{r.factor}': half of its items load each way ({', '.join(rest)} against "
+            f"{', '.join(r.reversed)}), so the data cannot tell which way it points: its direction follows its "
+            f"marker, and its correlations, mean differences and scores may read the wrong way; declare the items "
+            f"worded against the trait with 'reversed ... on LOWEST to HIGHEST', which orients the factor by its "
+            f"other items and keys the sums")
 
 
 def _turned_warning(r: FactorReliability, prefix: str) -> str:

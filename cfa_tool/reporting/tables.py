@@ -680,7 +680,9 @@ def keying_sentence(rows) -> str:
         return ("Every item is keyed as the 'reversed' statement says: none is reversed. " if declared else
                 "Every item loads in its factor's direction, so none is reversed for scoring. ")
     why = ("as the 'reversed' statement declares" if declared else
-           "their loadings have the sign opposite to most items of their factor")
+           "their loadings have the sign opposite to most items of their factor"
+           + ("; where half of a factor's items load each way, opposite to the half with the larger loadings"
+              if any(r.evenly_split for r in rows) else ""))
     return f"Computed for keyed sums; reversed for scoring ({why}): {'; '.join(lists)}. "
 
 

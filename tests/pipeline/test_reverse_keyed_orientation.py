@@ -135,3 +135,23 @@ def test_ordinal_items_are_oriented_alike(answers):
     result = cfa_tool.fit(STRUCTURE + KEYS, cut, ordinal="all")
     fitted = _correlations(result)
     assert fitted[0, 1] > 0 and fitted[0, 2] > 0 and fitted[1, 2] > 0
+
+
+def test_a_factor_whose_items_split_evenly_is_named():
+    # re-check 6: two of four items worded each way and no 'reversed' statement: no majority says which way the
+    # factor points, so it got no caution and the keying note called two items 'opposite to most items'
+    # (invented population: loadings .7 with signs -, +, -, +)
+    L = np.array([[-0.7], [0.7], [-0.7], [0.7]])
+    rows = simulate_cfa(L, np.eye(1), np.diag(np.full(4, 0.51)), 600, 31, ["d1", "d2", "d3", "d4"])
+    result = cfa_tool.fit("factor k: d1..d4\n", rows)
+    said = [w for w in result.warnings if "half of its items load each way" in w]
+    assert len(said) == 1 and "factor 'k': half of its items load each way" in said[0]
+    assert "declare the items worded against the trait with 'reversed" in said[0]
+    (r,) = [r for r in result.groups[0].reliability if r.factor == "k"]
+    assert r.evenly_split and r.to_dict()["evenly_split"] is True
+    text = " ".join(result.summary().split())
+    assert "where half of a factor's items load each way, opposite to the half with the larger loadings" in text
+    # declared keys settle it: no caution
+    keyed = cfa_tool.fit("factor k: d1..d4\nreversed d1, d3 on -9 to 9\n", rows)
+    assert not any("half of its items" in w for w in keyed.warnings)
+    assert "evenly_split" not in next(r for r in keyed.groups[0].reliability if r.factor == "k").to_dict()
