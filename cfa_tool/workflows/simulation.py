@@ -443,6 +443,13 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     moments = SampleMoments(table.observed, target, np.zeros(table.p), n, n, 0, "<population>")
     est = estimate(spec, [(None, moments)], FitOptions(diagnostics=False, modification_indices=False))
     if not est.converged:
+        written = [f"{_as_written(par)} = {par.offset:g}" for par in table.parameters
+                   if par.group == 0 and not par.free and par.origin == "user"]
+        if written:  # values the file gives that no population near the standardized defaults can hold
+            raise ModelError(f"{spec.source}: no population near the standardized defaults (loadings .7, factor "
+                             f"correlations .3, item variances 1) has the values fixed in the model file "
+                             f"({', '.join(written)}): check them against the factors' variances they imply, or give "
+                             f"the other values with 'start' statements")
         raise OptionError("the model's structure could not be given default population values (the model may not be "
                           "identified); give them with 'start' statements")
     theta = np.where(np.isnan(given), est.theta, given)

@@ -106,3 +106,14 @@ def test_values_that_set_a_factors_scale_are_listed(tmp_path, capsys):
     marker = population[("loading", ("f1", "a1"))]
     # the default standardized loading .7 (this module's documented default), through the marker fixed at 1
     assert marker["from"] == "scale (fixed)" and marker["value"] == 1.0 and marker["standardized"] == pytest.approx(0.7)
+
+
+def test_fixed_values_no_default_population_can_hold_are_named(tmp_path, capsys):
+    # re-check 6: a covariance fixed at 5 between marker-scaled factors (variances about .49 by the defaults, so a
+    # correlation near 10) got "the model may not be identified"; the error names the fixed value instead
+    model = tmp_path / "cov5.cfa"
+    model.write_text("factor f1: a1, a2, a3\nfactor f2: b1, b2, b3\nfix covariance(f1, f2) = 5\n")
+    code, out, err = _run(["simulate", model, "--n", 50, "--output", tmp_path / "rows.csv"], capsys)
+    assert code == 2 and len(err.strip().splitlines()) == 1
+    assert "has the values fixed in the model file (covariance(f1, f2) = 5)" in err
+    assert "not be identified" not in err and not (tmp_path / "rows.csv").exists()
