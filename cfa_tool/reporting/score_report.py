@@ -69,9 +69,11 @@ def _one_item_sentence(fit) -> str:
     """Factors measured by one item, whose error variance the model must fix: their scores' determinacy,
     reliability and precision follow from that fixed value, not from the data (Bollen 1989, ch. 7)."""
     items: dict[str, list[str]] = {}
-    for e in fit.estimates:
-        if e.kind == "loading" and e.variables[1] in fit.observed:
-            items.setdefault(e.variables[0], []).append(e.variables[1])
+    rows = ([(e.kind, tuple(e.variables)) for e in fit.estimates] if hasattr(fit, "estimates") else  # a saved fit:
+            [(e.get("kind"), tuple(e.get("variables", ()))) for e in fit.payload.get("estimates", ())])  # its JSON rows
+    for kind, names in rows:
+        if kind == "loading" and len(names) == 2 and names[1] in fit.observed:
+            items.setdefault(names[0], []).append(names[1])
     one = sorted({f for f, xs in items.items() if len(set(xs)) == 1})
     if not one:
         return ""

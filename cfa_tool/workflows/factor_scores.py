@@ -618,6 +618,14 @@ def _theta_of_estimates(table, estimates: list[dict], another: OptionError, deri
         value = est.get("estimate")
         if not isinstance(value, (int, float)):
             raise another
+        if not np.isfinite(value):
+            raise OptionError(f"the fit result gives no number for {par.label} (its estimate is {value}); give the "
+                              f"JSON result as the fit wrote it")
+        if not par.terms and abs(value - par.offset) > 1e-8 * (1.0 + abs(value)):
+            raise OptionError(f"the fit result has {par.label} = {value:g} where the model file fixes it at "
+                              f"{par.offset:g}: the fit was made with another scale or other fixed values (a factor's "
+                              f"automatic marker is its first item not declared reversed); fit the model again and "
+                              f"score from that result")
         values.append(float(value))
         if len(par.terms) == 1 and par.terms[0][1] != 0:
             index, coefficient = par.terms[0]

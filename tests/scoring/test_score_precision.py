@@ -62,3 +62,21 @@ def test_a_factor_of_one_item_is_said_to_restate_its_fixed_error_variance(hs_dat
         assert "textual: measured" not in table.note
     plain = scores_report(cfa_tool.scores("factor textual: x4, x5, x6\n", hs_data))
     assert not any("measured by one item" in (t.note or "") for t in plain.tables)
+
+
+def test_scores_from_a_saved_fit_of_a_one_item_factor_say_it_too(tmp_path, hs_data, capsys):
+    # the note reads the saved fit's JSON rows (scores --from-fit has no fit object: it stopped with an internal
+    # error when the note read the fit's estimates)
+    from cfa_tool.cli import main
+
+    model = tmp_path / "one.cfa"
+    model.write_text("factor visual: x1\nfix variance(x1) = 0\nfactor textual: x4, x5, x6\n")
+    data = tmp_path / "hs.csv"
+    hs_data.to_csv(data, index=False)
+    saved = tmp_path / "fit.json"
+    assert main([str(a) for a in ("fit", model, "--data", data, "--json", saved)]) == 0
+    capsys.readouterr()
+    code = main([str(a) for a in ("scores", model, "--data", data, "--from-fit", saved, "--output", tmp_path / "s.csv")])
+    out = capsys.readouterr()
+    assert code == 0, out.err
+    assert "visual: measured by one item, whose error variance the model fixes" in " ".join(out.out.split())

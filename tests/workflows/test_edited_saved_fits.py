@@ -120,3 +120,22 @@ def test_an_estimate_written_as_text_is_named(tmp_path, saved, capsys):
                         capsys)
     assert code == 2 and 'the estimate of loading(visual, x2) is "0.8", not a number' in err
     assert not (tmp_path / "s.csv").exists() and not (tmp_path / "r.csv").exists()
+
+
+@pytest.mark.parametrize("edit, words", [
+    # a fit made with another marker (as fits of a declared-reversed first item were before markers skipped them)
+    (("loading", ["visual", "x1"], 0.9), "the fit result has loading(visual, x1) = 0.9 where the model file fixes it "
+                                         "at 1: the fit was made with another scale or other fixed values"),
+    # NaN written into the JSON (json.dumps writes NaN, json.loads reads it back as a float)
+    (("loading", ["visual", "x2"], float("nan")), "the fit result gives no number for loading(visual, x2)"),
+])
+def test_scores_name_why_a_saved_fit_does_not_match(tmp_path, saved, capsys, edit, words):
+    # re-check 6: both were told 'the fit result is not of the model ...; give the model file the fit was made with'
+    model = tmp_path / "hs.cfa"
+    model.write_text(THREE_FACTORS)
+    edited = tmp_path / "edited.json"
+    edited.write_text(json.dumps(_edited(saved, *edit)))
+    out = tmp_path / "scores.csv"
+    code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", edited, "--output", out], capsys)
+    assert code == 2 and len(err.strip().splitlines()) == 1 and not out.exists()
+    assert words in err and "is not of the model" not in err
