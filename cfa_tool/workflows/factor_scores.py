@@ -611,7 +611,7 @@ def _theta_of_estimates(table, estimates: list[dict], another: OptionError, deri
     fixed parameters whose reported value follows from the others (an ordinal fit's residual variances)."""
     theta = np.full(table.n_free, np.nan)
     values = []
-    for par, est in zip(table.parameters, estimates):
+    for k, (par, est) in enumerate(zip(table.parameters, estimates)):
         group = table.groups[par.group] if table.multigroup else None
         if est.get("kind") != par.kind or tuple(est.get("variables", ())) != par.variables or est.get("group") != group:
             raise another
@@ -621,7 +621,7 @@ def _theta_of_estimates(table, estimates: list[dict], another: OptionError, deri
         if not np.isfinite(value):
             raise OptionError(f"the fit result gives no number for {par.label} (its estimate is {value}); give the "
                               f"JSON result as the fit wrote it")
-        if not par.terms and abs(value - par.offset) > 1e-8 * (1.0 + abs(value)):
+        if not par.terms and k not in derived and abs(value - par.offset) > 1e-8 * (1.0 + abs(value)):
             raise OptionError(f"the fit result has {par.label} = {value:g} where the model file fixes it at "
                               f"{par.offset:g}: the fit was made with another scale or other fixed values (a factor's "
                               f"automatic marker is its first item not declared reversed); fit the model again and "
