@@ -318,9 +318,9 @@ def _matrix_sentence(result, subject: str = "The model was") -> str:
     analysed = getattr(result.data, "analysed", None)
     if analysed is None:
         return ""
-    text = (f"{subject} fitted to summary statistics, not to rows of answers: {analysed.value}, with N = "
-            f"{result.n_obs} as given with the matrix")
-    text += "" if NotGiven.MEANS in result.data.not_given else " (and the items' means)"
+    text = (f"{subject} fitted to summary statistics, not to rows of answers: {analysed.value}"
+            + ("" if NotGiven.MEANS in result.data.not_given else ", with the items' means")
+            + f", and N = {result.n_obs} as given in the file")
     if analysed is AnalysedMatrix.CORRELATION:
         text += ("; the correlations were analysed as if they were covariances, so the unstandardized estimates are in "
                  "standard-deviation units and their standard errors are only approximate (Cudeck, 1989), while the "

@@ -44,9 +44,9 @@ def model(tmp_path):
 
 @pytest.mark.parametrize("rows, said", [
     (SDS + MEANS, "fitted to summary statistics, not to rows of answers: a correlation matrix and standard deviations "
-                  "(covariances rebuilt from them), with N = 301 as given with the matrix (and the items' means)."),
+                  "(covariances rebuilt from them), with the items' means, and N = 301 as given in the file."),
     ("", "fitted to summary statistics, not to rows of answers: a correlation matrix without standard deviations, "
-         "with N = 301 as given with the matrix; the correlations were analysed as if they were covariances, so the "
+         "and N = 301 as given in the file; the correlations were analysed as if they were covariances, so the "
          "unstandardized estimates are in standard-deviation units and their standard errors are only approximate"),
 ])
 def test_the_methods_paragraph_says_which_matrix_was_analysed(tmp_path, model, capsys, rows, said):
