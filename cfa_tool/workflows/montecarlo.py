@@ -60,10 +60,13 @@ class MonteCarloPower(Presentable):
     inadmissible: int = 0
     #: what the earlier fit's data had that the simulated rows do not (simulation.Population.not_carried)
     not_carried: tuple[str, ...] = ()
-    #: the model's items, which tell an item's residual variance from a factor's variance in the labels
-    observed: tuple[str, ...] = ()
     #: the population the samples were drawn from (simulation.Population): every value, fixed ones included
     population: object = field(default=None, compare=False)
+
+    @property
+    def observed(self) -> tuple[str, ...]:
+        """The model's items, which tell an item's residual variance from a factor's variance in the labels."""
+        return tuple(self.population.spec.observed_names) if self.population is not None else ()
 
     def to_dict(self) -> dict:
         return {"n_obs": self.n_obs, "replications": self.replications, "converged": self.converged,
@@ -193,7 +196,7 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
                                       _parameter_rows(table.free_labels, np.array(truth), thetas, ses, alpha), defaulted,
                                       weighting.phrase, float(np.mean([d.p_value < alpha for d in ok])),
                                       _negative_variances(thetas, variances), population.not_carried,
-                                      tuple(population.spec.observed_names), population))
+                                      population))
     return powers[0] if len(sizes) == 1 else PowerCurve(tuple(powers))
 
 
@@ -214,7 +217,7 @@ def _summary(population, n_obs: int, replications: int, seed: int, alpha: float,
     variances = sorted({p.terms[0][0] for p in table.parameters if p.kind in VARIANCE_KINDS and len(p.terms) == 1})
     return MonteCarloPower(n_obs, replications, len(ok), alpha, seed, rows, population.defaulted,
                            inadmissible=_negative_variances(thetas, variances), not_carried=population.not_carried,
-                           observed=tuple(population.spec.observed_names), population=population)
+                           population=population)
 
 
 #: the parameters whose negative estimate makes a solution inadmissible (a Heywood case)

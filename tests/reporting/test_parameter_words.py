@@ -138,7 +138,11 @@ def test_the_power_simulation_tables_name_parameters_in_words():
     # read 'variance of ...'), in the table and in the defaults line
     rows = tuple(ParameterPower(label, 0.5, 0.5, 0.0, 0.1, 0.1, 0.95, 0.9)
                  for label in ("variance(y3)", "variance(f)", "covariance(f, g)", "covariance(y2, y3)"))
-    result = MonteCarloPower(200, 500, 500, 0.05, 1, rows, ("variance(y3)",), observed=("y2", "y3", "y7"))
+    from cfa_tool.language.parser import parse_model
+    from cfa_tool.workflows.simulation import population_from_spec
+
+    population = population_from_spec(parse_model("factor f: y2, y3, y7\nfactor g: y1, y4, y5\n"))
+    result = MonteCarloPower(200, 500, 500, 0.05, 1, rows, ("variance(y3)",), population=population)
     report = montecarlo_report(result)
     assert [row[0] for row in report.tables[0].rows] == ["residual variance of y3", "variance of factor f",
                                                          "covariance of factors f and g",
