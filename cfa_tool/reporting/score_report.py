@@ -67,7 +67,8 @@ def caution_lines(result) -> list[str]:
 
 def _one_item_sentence(fit) -> str:
     """Factors measured by one item, whose error variance the model must fix: their scores' determinacy,
-    reliability and precision follow from that fixed value, not from the data (Bollen 1989, ch. 7)."""
+    reliability and precision follow from that fixed value, not from the data (Bollen 1989, ch. 7; the chapter
+    recalled from memory)."""
     items: dict[str, list[str]] = {}
     rows = ([(e.kind, tuple(e.variables)) for e in fit.estimates] if hasattr(fit, "estimates") else  # a saved fit:
             [(e.get("kind"), tuple(e.get("variables", ()))) for e in fit.payload.get("estimates", ())])  # its JSON rows

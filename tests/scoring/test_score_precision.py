@@ -52,7 +52,7 @@ def test_no_precision_caution_when_the_scores_are_reliable_enough():
 
 def test_a_factor_of_one_item_is_said_to_restate_its_fixed_error_variance(hs_data):
     # one item with its error variance fixed at 0 (hostile trial 6, H6): determinacy 1 and SE 0 are the assumption,
-    # not evidence; both tables say so (Bollen 1989, ch. 7, on single indicators)
+    # not evidence; both tables say so (Bollen 1989, ch. 7, on single indicators; the chapter recalled from memory)
     result = cfa_tool.scores("factor visual: x1\nfix variance(x1) = 0\nfactor textual: x4, x5, x6\n", hs_data)
     report = scores_report(result)
     for title in ("Quality of the scores", "How precise"):
@@ -76,7 +76,8 @@ def test_scores_from_a_saved_fit_of_a_one_item_factor_say_it_too(tmp_path, hs_da
     saved = tmp_path / "fit.json"
     assert main([str(a) for a in ("fit", model, "--data", data, "--json", saved)]) == 0
     capsys.readouterr()
-    code = main([str(a) for a in ("scores", model, "--data", data, "--from-fit", saved, "--output", tmp_path / "s.csv")])
+    code = main([str(a) for a in ("scores", model, "--data", data, "--from-fit", saved,
+                                  "--output", tmp_path / "s.csv")])
     out = capsys.readouterr()
     assert code == 0, out.err
     assert "visual: measured by one item, whose error variance the model fixes" in " ".join(out.out.split())
