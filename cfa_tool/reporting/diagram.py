@@ -17,7 +17,11 @@ the items unobstructed.  A model whose items do not fit in one row of
 ``MAX_WIDTH`` is drawn in bands of whole factors, one band under the other;
 its factor correlations, and residual correlations that would join two bands,
 are then listed at the top of the drawing instead of arcs crossing the bands;
-so are correlations between a factor of the bottom row and one above it.
+so are correlations between a factor of the bottom row and one above it.  The
+factors whose lines would cross the bands (higher-order, general and method
+factors) are then drawn in a row of their own above the bands, and their
+loadings (and a cross-loading that would join two bands) are listed with the
+correlations.
 Arcs between factors leave each ellipse at their own point of its top, so they
 do not all meet at one point.
 """
@@ -63,7 +67,8 @@ def _label(x: float, y: float, text: str, size: int = 11, anchor: str = "middle"
 BLOCK_LOADING_DRAWN = 0.30  # rotated loadings of exploratory blocks drawn from this size on (common practice)
 LEGEND = ("Standardized values. Ellipses: factors; rectangles: observed items; circles: residual terms (share of "
           "variance not explained); dashed arrows: loadings fixed to set a factor's scale; curved double arrows: "
-          "correlations (listed above the drawing instead when it is drawn in rows of factors).")
+          "correlations (listed above the drawing instead when it is drawn in rows of factors, as are the loadings of "
+          "the factors drawn apart above the rows).")
 BLOCK_LEGEND = "Exploratory blocks: their rotated loadings of .30 or more in absolute value are drawn."
 
 METHOD_LEGEND = "Grey ellipses: method factors (a way of answering, not a trait)."
@@ -79,7 +84,8 @@ def legend_lines(result) -> list[str]:
     lines = ["Standardized values. Ellipses: factors; rectangles: observed items;",
              "circles: residual terms (share of variance not explained);",
              "dashed arrows: loadings fixed to set a factor's scale; curved double arrows: correlations",
-             "(listed above the drawing instead when it is drawn in rows of factors)."]
+             "(listed above the drawing instead when it is drawn in rows of factors,",
+             "as are the loadings of the factors drawn apart above the rows)."]
     if _method_factors(result):
         lines.append(METHOD_LEGEND)
     if getattr(result, "exploratory", ()):
@@ -111,6 +117,9 @@ class _Layout:
     banded: bool = False  # drawn in more than one band
     drop_level: dict = field(default_factory=dict)  # depth of each arc between residuals drawn (see _nesting)
     table: list[tuple[str, str, str]] = field(default_factory=list)  # correlations listed instead of drawn
+    apart: frozenset[str] = frozenset()  # factors drawn in a row above the bands, their loadings listed
+    listed_loadings: list[tuple[str, str]] = field(default_factory=list)  # (factor, item or factor) listed, not drawn
+    table_top: float = MARGIN  # where the lists of values not drawn begin
 
 
 def _cross_factors(latent, children, obs_set, methods) -> frozenset[str]:
@@ -144,21 +153,26 @@ def _layout(result, rows, obs_set) -> _Layout:
 
     for f in latent:
         level_of(f)
-    lay.bottom = _cross_factors(latent, children, obs_set, _method_factors(result))
-    lay.side_residuals = bool(lay.bottom)
+    cross = _cross_factors(latent, children, obs_set, _method_factors(result))
     top = max(level.values(), default=1)
     # each item sits under its home factor: the trait factor with its largest loading (in size)
     home: dict[str, str] = {}
-    for r in sorted(loadings, key=lambda r: (r.variables[0] not in lay.bottom, abs(r.standardized))):
+    for r in sorted(loadings, key=lambda r: (r.variables[0] not in cross, abs(r.standardized))):
         if r.variables[1] in obs_set:
             home[r.variables[1]] = r.variables[0]
     lay.home = home
     homes = [f for f in latent if f in home.values()]
     lay.order = sorted(observed, key=lambda x: (homes.index(home[x]) if x in home else len(homes), observed.index(x)))
-    step = {x: _box_width(x) + (SIDE_GAP + 2 * RESIDUAL_R + BOX_GAP // 2 if lay.side_residuals else BOX_GAP)
-            for x in lay.order}
     lay.widths = {x: _box_width(x) for x in lay.order}
-    # bands of whole factors (only for models without higher-order and cross factors, whose lines would cross bands)
+    # a model whose items do not fit in one row is drawn in bands of whole factors; the factors whose lines
+    # would cross the bands (higher-order, general and method factors) are then drawn apart, above the bands
+    one_row = sum(lay.widths[x] + BOX_GAP for x in lay.order)
+    wrap = one_row > MAX_WIDTH - 2 * MARGIN
+    lay.apart = frozenset(f for f in latent if wrap and (level[f] > 1 or f in cross))
+    lay.bottom = frozenset() if wrap else cross
+    lay.side_residuals = bool(lay.bottom)
+    step = {x: lay.widths[x] + (SIDE_GAP + 2 * RESIDUAL_R + BOX_GAP // 2 if lay.side_residuals else BOX_GAP)
+            for x in lay.order}
     blocks: list[list[str]] = []
     for x in lay.order:
         if blocks and home.get(x) == home.get(blocks[-1][0]):
@@ -166,11 +180,9 @@ def _layout(result, rows, obs_set) -> _Layout:
         else:
             blocks.append([x])
     bands: list[list[str]] = [[]]
-    cross_loadings = any(sum(r.variables[1] == x for r in loadings) > 1 for x in observed)
-    may_wrap = top == 1 and not lay.bottom and not cross_loadings
     for block in blocks:
         used = sum(step[x] for x in bands[-1])
-        if may_wrap and bands[-1] and used + sum(step[x] for x in block) > MAX_WIDTH - 2 * MARGIN:
+        if wrap and bands[-1] and used + sum(step[x] for x in block) > MAX_WIDTH - 2 * MARGIN:
             bands.append([])
         bands[-1].extend(block)
     for b, band in enumerate(bands):
@@ -178,7 +190,7 @@ def _layout(result, rows, obs_set) -> _Layout:
             lay.band_of[x] = b
     for f in latent:
         kids = [home_item for home_item in children[f] if home_item in lay.band_of]
-        lay.band_of[f] = min((lay.band_of[k] for k in kids), default=0)
+        lay.band_of[f] = -1 if f in lay.apart else min((lay.band_of[k] for k in kids), default=0)
     # x positions: items band by band from the left margin, factors over their own items
     for band in bands:
         x = MARGIN
@@ -186,14 +198,32 @@ def _layout(result, rows, obs_set) -> _Layout:
             lay.centre[name] = x + lay.widths[name] / 2
             x += step[name]
     width = max((MARGIN + sum(step[x] for x in band) - BOX_GAP + MARGIN for band in bands), default=200.0)
+    disturbed = _disturbed(rows, latent, children)
     for lvl in range(1, top + 1):
-        for f in [f for f in latent if level[f] == lvl]:
+        for f in [f for f in latent if level[f] == lvl and f not in lay.apart]:
             kids = [c for c in children[f] if c in lay.centre]
             own = [c for c in kids if home.get(c) == f] or kids
             lay.centre[f] = sum(lay.centre[c] for c in own) / len(own) if own else width / 2
-    _spread_factors(latent, {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre,
-                    _disturbed(rows, latent, children))
-    width = max(width, max((lay.centre[f] + _ellipse_rx(f) + 50 for f in latent), default=0.0), 200.0)
+    _spread_factors([f for f in latent if f not in lay.apart],
+                    {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre, disturbed)
+    width = max(width, max((lay.centre[f] + _ellipse_rx(f) + 50 for f in latent if f not in lay.apart), default=0.0),
+                200.0)
+    # factors drawn apart: highest level first, in rows as wide as the bands
+    apart_rows: list[list[str]] = []
+    for f in sorted(lay.apart, key=lambda f: (-level[f], latent.index(f))):
+        need = 2 * _ellipse_rx(f) + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
+        if not apart_rows or sum(_apart_width(g, disturbed) for g in apart_rows[-1]) + need > width - 2 * MARGIN:
+            apart_rows.append([])
+        apart_rows[-1].append(f)
+    y = MARGIN
+    for row in apart_rows:
+        x = (width - sum(_apart_width(g, disturbed) for g in row)) / 2
+        for f in row:
+            lay.centre[f] = x + 8 + _ellipse_rx(f)
+            lay.y_of[f] = y + ELLIPSE_RY
+            x += _apart_width(f, disturbed)
+        y += 2 * ELLIPSE_RY + 20
+    lay.table_top = y
     lay.width = width
     # correlations between factors of different bands go to a table above the drawing
     lay.banded = len(bands) > 1
@@ -204,9 +234,12 @@ def _layout(result, rows, obs_set) -> _Layout:
         if r.kind == "factor_covariance" and (lay.banded or (a in lay.bottom) != (b in lay.bottom)) or \
                 r.kind == "residual_covariance" and lay.band_of.get(a) != lay.band_of.get(b):
             lay.table.append((r.kind, a, b))
-    y = MARGIN + (18 + 16 * math.ceil(len(lay.table) / _table_columns(lay.table, width)) + 10 if lay.table else 0)
+        elif r.kind == "loading" and (a in lay.apart or lay.band_of[a] != lay.band_of[b]):
+            lay.listed_loadings.append((a, b))
+    for entries in _lists(lay):
+        y += 18 + 16 * math.ceil(len(entries) / _table_columns(entries, width)) + 10
     for b in range(len(bands)):
-        in_band = [f for f in latent if lay.band_of[f] == b and f not in lay.bottom]
+        in_band = [f for f in latent if lay.band_of[f] == b and f not in lay.bottom and f not in lay.apart]
         arcs = [r for r in rows if r.kind == "factor_covariance" and not lay.banded and not any(v in lay.bottom for v in r.variables)]
         spans = [abs(lay.centre[r.variables[0]] - lay.centre[r.variables[1]]) for r in arcs]
         y += max((_lift(s) for s in spans), default=0.0) + (24 if arcs else 0)
@@ -242,8 +275,41 @@ def _disturbed(rows, latent, children) -> set[str]:
     return {r.variables[0] for r in rows if r.kind == "factor_variance" and r.variables[0] in below}
 
 
+def _apart_width(f: str, disturbed: set[str]) -> float:
+    """Room a factor drawn apart takes in its row: its ellipse, a gap, and its disturbance circle if it has one."""
+    return 2 * _ellipse_rx(f) + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
+
+
+def _lists(lay: _Layout) -> list[list]:
+    """The lists above a drawing in bands, each non-empty: loadings not drawn as arrows, then correlations not
+    drawn as arcs."""
+    return [entries for entries in (lay.listed_loadings, lay.table) if entries]
+
+
+LIST_SIZE = 11  # font size of the lists above the drawing
+
+
+def _entry_width(entries) -> float:
+    """Width of one column of a list: 260 units, or more for long entries (their text, estimated as the layout
+    tests do, and a gap)."""
+    longest = max((len(_entry_text(e)) for e in entries), default=0)
+    return max(260.0, TEXT_EM * LIST_SIZE * (longest + 6) + 20)
+
+
+def _entry_text(entry, value: str = "") -> str:
+    """An entry of a list above the drawing: 'f1 on g' for a loading, 'a with b' or 'a with b (residuals)' for a
+    correlation (a value's room reserved when ``value`` is empty)."""
+    if len(entry) == 2:
+        factor, target = entry
+        text = f"{target} on {factor}"
+    else:
+        kind, a, b = entry
+        text = f"{a} with {b}{'' if kind == 'factor_covariance' else ' (residuals)'}"
+    return f"{text}: {value}" if value else text
+
+
 def _table_columns(table, width: float) -> int:
-    return max(1, int((width - 2 * MARGIN) // 260))
+    return max(1, int((width - 2 * MARGIN) // _entry_width(table)))
 
 
 def _drop(level: int) -> float:
@@ -331,21 +397,29 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
         parts.append(f'<text class="group-name" x="{MARGIN:.1f}" y="20" font-size="15" font-weight="bold">'
                      f'Group {esc(label)}</text>')
     parts.append(f'<g transform="translate(0,{head:.0f})">')
-    if lay.table:
-        parts.append(f'<text class="table-title" x="{MARGIN:.1f}" y="{MARGIN + 2:.1f}" font-size="11" font-weight="bold">'
-                     "Correlations not drawn as arcs</text>")
-        columns = _table_columns(lay.table, lay.width)
-        per = math.ceil(len(lay.table) / columns)
-        for k, (kind, a, b) in enumerate(lay.table):
-            r = next(r for r in rows if r.kind == kind and r.variables == (a, b))
-            text = f"{a} with {b}{'' if kind == 'factor_covariance' else ' (residuals)'}: {unit(r.standardized, 2)}"
-            parts.append(_label(MARGIN + 260 * (k // per), MARGIN + 20 + 16 * (k % per), text, anchor="start",
-                                cls="listed-correlation", problem=flagged(kind, (a, b))))
+    y = lay.table_top
+    for entries in _lists(lay):
+        loadings = len(entries[0]) == 2
+        title = "Loadings not drawn as arrows" if loadings else "Correlations not drawn as arcs"
+        parts.append(f'<text class="table-title" x="{MARGIN:.1f}" y="{y + 2:.1f}" font-size="{LIST_SIZE}" '
+                     f'font-weight="bold">{title}</text>')
+        columns = _table_columns(entries, lay.width)
+        per = math.ceil(len(entries) / columns)
+        for k, entry in enumerate(entries):
+            kind, variables = ("loading", entry) if loadings else (entry[0], entry[1:])
+            r = next(r for r in rows if r.kind == kind and r.variables == variables)
+            bad = flagged(kind, variables) or loadings and result.groups[group].r_squared.get(variables[1], 0.0) > 1.0
+            parts.append(_label(MARGIN + _entry_width(entries) * (k // per), y + 20 + 16 * (k % per),
+                                _entry_text(entry, unit(r.standardized, 2)), size=LIST_SIZE, anchor="start",
+                                cls="listed-loading" if loadings else "listed-correlation", problem=bad))
+        y += 18 + 16 * per + 10
     # loadings: an item's home factor first, so that a cross-loading's value moves along its line if it would
     # cover another
     placed: list[tuple[float, float, float, float]] = []
     for r in sorted((r for r in rows if r.kind == "loading"), key=lambda r: lay.home.get(r.variables[1]) != r.variables[0]):
         f, target = r.variables
+        if r.variables in lay.listed_loadings:
+            continue
         from_below = f in lay.bottom
         x1, y1 = centre[f], y_of[f] + (-ELLIPSE_RY if from_below else ELLIPSE_RY)
         if target in obs_set:

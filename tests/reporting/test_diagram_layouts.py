@@ -103,11 +103,30 @@ def shapes(hs_data):
     out["60 items"] = cfa_tool.fit("\n".join(f"factor part{j + 1}: " + ", ".join(names[10 * j:10 * j + 10]) for j in range(6))
                                    + "\ncovary rating_03, rating_04\ncovary rating_15, rating_18\ncovary rating_16, rating_17\n"
                                    "covary rating_14, rating_19\ncovary rating_18, rating_20\ncovary rating_29, rating_41\n", data)
+    # 60 items in ten factors under one higher-order factor, and a bifactor model of 48 items
+    loadings = np.zeros((60, 10))
+    for i in range(60):
+        loadings[i, i // 6] = 0.7
+    names = [f"i{i + 1:02d}" for i in range(60)]
+    data = simulate_cfa(loadings, 0.4 * np.eye(10) + 0.6, np.diag(np.full(60, 0.5)), 1500, 8, names)
+    out["higher-order, 60 items"] = cfa_tool.fit("".join(f"factor f{j + 1}: " + ", ".join(names[6 * j:6 * j + 6]) + "\n"
+                                                         for j in range(10))
+                                                 + "factor g: " + ", ".join(f"f{j + 1}" for j in range(10)) + "\n", data)
+    loadings = np.zeros((48, 5))
+    loadings[:, 0] = 0.6
+    for i in range(48):
+        loadings[i, 1 + i // 12] = 0.5
+    data = simulate_cfa(loadings, np.eye(5), np.diag(np.full(48, 0.4)), 1500, 9, [f"item{i + 1:02d}" for i in range(48)])
+    out["bifactor, 48 items"] = cfa_tool.fit("factor general: item01..item48\n"
+                                             + "".join(f"factor part_{j + 1}: item{12 * j + 1:02d}..item{12 * j + 12:02d}\n"
+                                                       for j in range(4))
+                                             + "scale latent by variance\nuncorrelated general, part_1, part_2, part_3, part_4\n",
+                                             data)
     return out
 
 
 LAYOUTS = ("small", "higher-order", "groups", "bifactor", "method factor", "method factor, correlated", "exploratory block",
-           "60 items")
+           "60 items", "higher-order, 60 items", "bifactor, 48 items")
 
 
 @pytest.mark.parametrize("shape", LAYOUTS)
@@ -242,3 +261,26 @@ def test_correlations_of_the_bottom_row_with_factors_above_are_listed_not_drawn(
     listed = re.findall(r'class="listed-correlation"[^>]*>([^<]*)<', svg)
     assert [text.split(":")[0] for text in listed] == ["trust with wording", "loyalty with wording"]
     assert svg.count('class="covariance') == 1  # trust with loyalty, drawn as an arc
+
+
+@pytest.mark.parametrize("shape", ["higher-order, 60 items", "bifactor, 48 items"])
+def test_a_big_model_is_drawn_in_bands_as_wide_as_a_page_and_every_loading_is_drawn_or_listed(shapes, shape):
+    """A model too wide for one row is drawn in bands no wider than ``MAX_WIDTH``; a factor whose lines would cross
+    the bands (the higher-order factor, the general factor) is drawn once above them, and each of its loadings is
+    listed there with its value; every other loading is an arrow."""
+    from cfa_tool.reporting.diagram import MAX_WIDTH
+    from cfa_tool.reporting.numbers import unit
+
+    result = shapes[shape]
+    svg = diagram_file(result)
+    root = ET.fromstring(svg)
+    assert float(root.get("viewBox").split()[2]) <= MAX_WIDTH
+    names = ["".join(t.itertext()) for t in root.iter(SVG + "text") if t.get("class") == "name"]
+    assert sorted(names) == sorted(list(result.latent) + list(result.observed))  # each factor and item once
+    listed = re.findall(r'class="listed-loading"[^>]*>([^<]*)<', svg)
+    arrows = len(root.findall(f".//{SVG}line[@class='loading']"))
+    rows = [r for r in result.estimates if r.kind == "loading"]
+    assert arrows + len(listed) == len(rows)
+    apart = {"higher-order, 60 items": {"g"}, "bifactor, 48 items": {"general"}}[shape]
+    assert sorted(listed) == sorted(f"{r.variables[1]} on {r.variables[0]}: {unit(r.standardized, 2)}"
+                                    for r in rows if r.variables[0] in apart)

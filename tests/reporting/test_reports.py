@@ -96,9 +96,10 @@ def test_diagram_of_a_large_higher_order_model_is_legible():
     result = cfa_tool.fit("\n".join(lines) + "\n", data)
     svg = path_diagram(result)
     assert _count(r"<ellipse\b", svg) == 10 and _count(r"<rect\b", svg) == 40
-    boxes = [(float(x), float(w)) for x, w in re.findall(r'<rect class="indicator" x="([\d.]+)" y="[\d.]+" width="([\d.]+)"', svg)]
-    boxes.sort()
-    assert all(a[0] + a[1] < b[0] for a, b in zip(boxes, boxes[1:]))
+    boxes = [(float(y), float(x), float(w)) for x, y, w in
+             re.findall(r'<rect class="indicator" x="([\d.]+)" y="([\d.]+)" width="([\d.]+)"', svg)]
+    boxes.sort()  # row by row (the model is drawn in bands), left to right
+    assert all(a[1] + a[2] < b[1] for a, b in zip(boxes, boxes[1:]) if a[0] == b[0])
     ellipses = [(float(cx), float(cy), float(rx)) for cx, cy, rx in
                 re.findall(r'<ellipse class="factor" cx="([\d.]+)" cy="([\d.]+)" rx="([\d.]+)"', svg)]
     for (x1, y1, r1) in ellipses:
