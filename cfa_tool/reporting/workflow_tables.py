@@ -889,7 +889,7 @@ def population_parts(population) -> tuple[str, ReportTable]:
     else:
         line = ("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances "
                 "1) and converted to the model's scaling; values from 'start' statements replace them.")
-    rows = [[f"{v['kind'].replace('_', ' ')} {', '.join(v['variables'])}", num(v["value"]), num(v["standardized"]),
+    rows = [[parameter_words(v["kind"], tuple(v["variables"]), article=False), num(v["value"]), num(v["standardized"]),
              v["from"]] for v in entries]
     values = [[v["kind"], ", ".join(v["variables"]), v["value"], v["standardized"], v["from"]] for v in entries]
     words = ("From: earlier fit = its estimate" if population.fitted_from is not None else

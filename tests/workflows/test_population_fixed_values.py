@@ -74,7 +74,7 @@ def test_the_population_table_lists_fixed_values_and_says_where_each_came_from(t
     words = " ".join(out.split())
     assert words.index("Values fixed in the model file hold as written") < words.index("their standardized values can "
                                                                                          "differ from .7 and .3")
-    assert words.index("loading f1, a3 0.800") < words.index("residual variance a2 0.300 0.308 fix")
+    assert words.index("loading of a3 on f1 0.800") < words.index("residual variance of a2 0.300 0.308 fix")
     assert "fix = a 'fix' statement" in words
 
 
@@ -89,7 +89,8 @@ def test_power_simulation_shows_the_population_it_drew_from(tmp_path, capsys, si
                            "--json", saved], capsys)
     assert code == 0, err
     words = " ".join(out.split())
-    assert "Population values used" in words and "residual variance a2 0.300 0.308 fix" in words
+    assert "Population values used" in words and "residual variance of a2 0.300 0.308 fix" in words
+    assert "loading of a3 on f1 0.800" in words  # parameters in the words of every other table (parameter_words)
     assert "Values fixed in the model file hold as written" in words
     result = json.loads(saved.read_text())
     first = result["by_sample_size"][0] if "by_sample_size" in result else result
