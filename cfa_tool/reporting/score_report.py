@@ -207,14 +207,29 @@ def sum_table(result, k: int) -> ReportTable | None:
                   "(McDonald 1999). The last two columns show what the simpler score loses against the factor score.")
 
 
+def _unscored_counts(factors, counts) -> str:
+    """The rows without a score of each factor, in one cell: '150 for each factor' when every factor lost the same
+    rows, else each factor that lost rows with its count ('g 301')."""
+    if len(set(counts)) == 1 and len(factors) > 1:
+        return f"{counts[0]} for each factor"
+    return ", ".join(f"{f} {c}" for f, c in zip(factors, counts) if c)
+
+
 def unscored_table(result) -> ReportTable | None:
+    """Why cells of the scores file are empty: one row for each reason and method, the method and the rows each
+    factor lost in one cell, so that a row of the table stays whole in one table at 80 columns (two columns are
+    never split into parts; the data files keep a column for each factor)."""
     if not result.unscored:
         return None
-    rows = [[reason, METHOD_LABELS.get(next((m for m in ScoreMethod if m.value == method), None), method)]
-            + [str(c) for c in counts] for reason, method, counts in result.unscored]
+    labels = [METHOD_LABELS.get(next((m for m in ScoreMethod if m.value == method), None), method)
+              for _, method, _ in result.unscored]
+    rows = [[reason, f"{label}: {_unscored_counts(result.factors, counts)}"]
+            for (reason, _, counts), label in zip(result.unscored, labels)]
+    values = [[reason, label, *counts] for (reason, _, counts), label in zip(result.unscored, labels)]
     return _table("unscored", "Rows without scores (empty cells), by reason",
-                  [("Reason", "l"), ("Method", "l")] + [(f, "r") for f in result.factors], rows,
-                  "These rows stay in the file, in their place, with empty cells.")
+                  [("Reason", "l"), ("Method: rows without a score", "l")], rows,
+                  "These rows stay in the file, in their place, with empty cells.",
+                  values=(["Reason", "Method", *result.factors], values))
 
 
 def score_tables(result) -> list[ReportTable]:

@@ -264,3 +264,38 @@ def test_a_row_without_a_group_is_counted_once(tmp_path, hs_data):
     reasons = {reason: counts for reason, _, counts in scored.unscored}
     assert max(reasons.get("no value in the group column", (0,))) == 1
     assert max(reasons.get("a group the fit does not have", (0,))) == 0
+
+
+def test_rows_without_scores_stay_one_table_at_80_columns(hs_data):
+    # re-check 6: one row of this table was split over five continued tables at 80 columns (a column per factor
+    # beside the long reason); the counts are those made here by hand, and the data file's values keep a column
+    # for each factor
+    import cfa_tool
+    from cfa_tool.reporting.score_report import score_tables, scores_report
+    from cfa_tool.reporting.terminal import report_text
+    from cfa_tool.scoring.methods import ScoreMethod
+
+    fitted = cfa_tool.fit(THREE_FACTORS, hs_data)
+    gaps = hs_data.copy()
+    gaps.loc[gaps.index[:4], ["x1", "x2", "x3"]] = np.nan  # four rows without the visual items
+    gaps.loc[gaps.index[4], [f"x{i}" for i in range(1, 10)]] = np.nan  # one row without any answer
+    scored = fitted.scores(gaps, methods=(ScoreMethod.REGRESSION, ScoreMethod.BARTLETT))
+    text = report_text(scores_report(scored), 80)
+    part = text[text.index("Rows without scores"):text.index("These rows stay in the file")]
+    assert "continued" not in part
+    words = " ".join(part.split())
+    assert "no answers on the model's items regression: 1 for each factor" in words
+    # Bartlett scores the three factors jointly: the four rows without the visual items lose every factor's score
+    assert "scores jointly" in words and "Bartlett: 4 for each factor" in words
+    table = next(t for t in score_tables(scored) if t.key == "unscored")
+    assert table.value_columns == ("Reason", "Method", *FACTORS)
+    assert [list(v[2:]) for v in table.values] == [[1, 1, 1], [1, 1, 1], [4, 4, 4]]
+
+
+def test_rows_without_scores_name_only_the_factors_that_lost_rows():
+    from cfa_tool.reporting.score_report import _unscored_counts
+
+    assert _unscored_counts(("visual", "textual", "ability"), (0, 0, 301)) == "ability 301"
+    assert _unscored_counts(("visual", "textual"), (2, 5)) == "visual 2, textual 5"
+    assert _unscored_counts(("visual", "textual"), (3, 3)) == "3 for each factor"
+    assert _unscored_counts(("visual",), (3,)) == "visual 3"
