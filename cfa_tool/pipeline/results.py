@@ -181,14 +181,20 @@ class DataSummary:
         return min(counts), max(counts)
 
     def to_dict(self) -> dict:
+        """The data block of a fit's JSON.  ``sds`` are those of the moments the model analyses (divisor N, as
+        ``sd_divisor`` says; the reports' tables show SDs with divisor N - 1), null when the file gave none (a
+        correlation matrix alone), as ``means`` are; summary statistics hold no rows, so their ``rows_read`` and
+        ``rows_dropped`` are null (N is ``n_obs``, as given in the file)."""
+        rows = self.analysed is None
         out = {
             "source": self.source,
-            "rows_read": self.rows_read,
-            "rows_dropped": self.rows_dropped,
+            "rows_read": self.rows_read if rows else None,
+            "rows_dropped": self.rows_dropped if rows else None,
             "n_obs": self.n_obs,
             "variables": list(self.variables),
             "means": None if any(g.value == "means" for g in self.not_given) else list(self.means),
-            "sds": list(self.sds),
+            "sds": None if any(g.value == "standard_deviations" for g in self.not_given) else list(self.sds),
+            "sd_divisor": "N",
         }
         if self.skewness:
             out.update(answered=list(self.answered), skewness=list(self.skewness), excess_kurtosis=list(self.kurtosis))

@@ -557,8 +557,10 @@ def read_saved_fit(path) -> SavedFit:
         if "not_given" not in d and not any(e.get("kind") == "intercept" for e in payload["estimates"]) \
                 and not any(means) and not counts:
             not_given = (NotGiven.MEANS,)  # written before fits said so: every item mean 0 is no mean at all
-        summary = DataSummary(str(d["source"]), int(d["rows_read"]), int(d["rows_dropped"]), int(d["n_obs"]),
-                              tuple(d["variables"]), means, tuple(float(v) for v in d["sds"]),
+        summary = DataSummary(str(d["source"]), int(d["rows_read"] if d["rows_read"] is not None else d["n_obs"]),
+                              int(d["rows_dropped"] or 0), int(d["n_obs"]),  # summary statistics: no rows
+                              tuple(d["variables"]), means,
+                              tuple(float(v) for v in d["sds"]) if d["sds"] is not None else (float("nan"),) * len(means),
                               categories=categories if counts else (), not_given=not_given,
                               missing_codes=tuple(float(v) for v in d.get("missing_codes", ())))
         problems = tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],

@@ -90,6 +90,26 @@ def test_means_and_sds_not_given_are_shown_as_not_given_and_no_rows_are_counted(
     assert json.loads(saved.read_text())["n_obs"] == 301 and json.loads(saved.read_text())["rows"] is None
 
 
+
+def test_the_json_data_block_of_a_matrix_says_its_divisor_and_counts_no_rows(tmp_path, model, capsys):
+    # re-check 6: a covariance file declaring divisor n gave JSON sds with divisor N without saying so (the views
+    # show N - 1), and rows_read 10 for a file that holds no rows. The variance of x1 is 4 with divisor N = 10 as
+    # given: SD 2 with divisor N (the JSON, labelled), sqrt(4 * 10 / 9) = 2.108 with divisor N - 1 (the table)
+    stats = tmp_path / "covn.stats"
+    stats.write_text("covariance,x1,x2,x3,x4,x5,x6\n" + MATRIX.replace("x1,1\n", "x1,4\n").replace("n,301", "n,10")
+                     + "divisor,n\n")
+    saved = tmp_path / "fit.json"
+    code, out, err = _run(["fit", model, "--data", stats, "--json", saved], capsys)
+    assert code == 0, err
+    assert "x1 not given 2.11" in _words(out) and "SD with divisor N - 1" in _words(out)
+    data = json.loads(saved.read_text())["data"]
+    assert data["sd_divisor"] == "N" and data["sds"][0] == pytest.approx(2.0, abs=1e-12)
+    assert data["rows_read"] is None and data["rows_dropped"] is None and data["n_obs"] == 10
+    stats.write_text("correlation,x1,x2,x3,x4,x5,x6\n" + MATRIX)  # no sd row: no SDs known
+    code, out, err = _run(["fit", model, "--data", stats, "--json", saved], capsys)
+    data = json.loads(saved.read_text())["data"]
+    assert code == 0 and data["sds"] is None and data["not_given"] == ["means", "standard_deviations"]
+
 def test_a_saved_fit_of_summary_statistics_without_means_is_still_read(tmp_path, model, capsys):
     """A fit whose JSON holds no means (null) is refused for scores for the lack of means, not as no fit result."""
     stats = tmp_path / "cov.stats"
