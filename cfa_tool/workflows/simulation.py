@@ -412,12 +412,13 @@ def impossible_fixed_values(table: ParameterTable, source: str) -> None:
             for j in range(i):
                 corr[i, j] = corr[j, i] = pairs[frozenset((members[i], members[j]))][0] / (sd[i] * sd[j])
         if np.linalg.eigvalsh(corr)[0] <= 0:
-            values = [_correlation(corr[i, j]) for i in range(len(members)) for j in range(i)]
+            values = [f"{_correlation(corr[i, j])} ({members[i]} with {members[j]})"  # each pair with its value
+                      for i in range(len(members)) for j in range(i + 1, len(members))]
             what = "factor correlations" if kind == "factor" else "residual correlations"
             hows = {pairs[frozenset((members[i], members[j]))][1] for i in range(len(members)) for j in range(i)}
             how = "fixed at" if hows == {"fixed at"} else "given as"
             raise ModelError(f"{source}: the {what} {how} {', '.join(values[:-1])} and {values[-1]} "
-                             f"({', '.join(members)}) cannot hold together (their matrix is not positive definite), so "
+                             f"cannot hold together (their matrix is not positive definite), so "
                              f"no population has them; change the values")
 
 

@@ -30,8 +30,9 @@ THREE = "factor f1: a1, a2, a3\nfactor f2: b1, b2, b3\nfactor f3: c1, c2, c3\nsc
      "the fixed values make the population covariance matrix impossible: variance(a2) is fixed at -0.01"),
     ("factor f1: a1, a2, a3\nfix variance(a1) = -0.5\n", "variance(a1) is fixed at -0.5"),
     (THREE + "fix covariance(f1, f2) = 0.95\nfix covariance(f2, f3) = 0.95\nfix covariance(f1, f3) = -0.95\n",
-     "the factor correlations fixed at .95, -.95 and .95 (f1, f2, f3) cannot hold together (their matrix is not "
-     "positive definite)"),
+     # re-check 6: each value named with its pair (the values and the factors were listed apart)
+     "the factor correlations fixed at .95 (f1 with f2), -.95 (f1 with f3) and .95 (f2 with f3) cannot hold together "
+     "(their matrix is not positive definite)"),
     (THREE + "fix covariance(f1, f2) = 1.2\n", "covariance(f1, f2) is fixed at 1.2, beyond what the variances"),
     # the same with 'start' values (a negative one was simulated without a word; a correlation of 1.5 was said to be
     # a model that 'may not be identified')
