@@ -10,6 +10,7 @@ import numpy as np
 from cfa_tool.assessment.reliability import Keying
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, WeightKind
+from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.numbers import index_text, missing, num, p_phrase, p_value, unit, word_list
 from cfa_tool.reporting.remedies import Remedy
 
@@ -540,10 +541,9 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
     shown = rows[:limit] if result.mi_top is None else rows
     title = f"Largest modification indices (at least {result.mi_threshold:g}; {len(shown)} of {len(rows)} shown)"
     body = []
-    for m in shown:
-        where = f" in {m.group}" if m.group is not None else ""
-        body.append([f"{m.kind.replace('_', ' ')} {', '.join(m.variables)}{where}", num(m.index, 2), num(m.expected_change),
-                     num(m.standardized_expected_change)])
+    for m in shown:  # parameters in words, as every table names them
+        body.append([parameter_words(m.kind, tuple(m.variables), m.group, article=False), num(m.index, 2),
+                     num(m.expected_change), num(m.standardized_expected_change)])
     note = ("Standardized: for loadings on the fully standardized metric; for residual covariances on the residual "
             "correlation metric (the expected change over the two residual standard deviations).")
     beyond = [m for m in shown if m.kind == "residual_covariance" and abs(m.standardized_expected_change) > 1]

@@ -609,7 +609,7 @@ def bootstrap_report(boot) -> Report:
     def shown(value: float, scale: str) -> str:  # a standardized value within [-1, 1] without its leading zero
         return unit(value) if scale == "standardized" and not missing(value) and abs(value) <= 1 else num(value)
 
-    rows = [[f"{i.kind.replace('_', ' ')} {', '.join(i.variables)}", SCALE_WORDS.get(i.scale, i.scale),
+    rows = [[parameter_words(i.kind, i.variables, article=False), SCALE_WORDS.get(i.scale, i.scale),
              shown(i.estimate, i.scale),
              num(i.bootstrap_se), f"[{shown(i.percentile[0], i.scale)}, {shown(i.percentile[1], i.scale)}]",
              *([] if ordinal else [f"[{shown(i.bca[0], i.scale)}, {shown(i.bca[1], i.scale)}]"])] for i in boot.intervals]

@@ -148,3 +148,25 @@ def test_the_power_simulation_tables_name_parameters_in_words():
                                                          "covariance of factors f and g",
                                                          "residual covariance of y2 and y3"]
     assert "took defaults: the residual variance of y3" in _plain(report_text(report, 100))
+
+
+def test_modification_and_bootstrap_tables_name_parameters_in_words(hs_data):
+    # re-check 6: these two tables kept the compact 'loading visual, x9' form where every other table gives words;
+    # one rule now: words in every view (the data files keep the kind and the variables apart)
+    from cfa_tool.reporting.tables import modification_table
+    from cfa_tool.reporting.workflow_tables import bootstrap_report
+    from cfa_tool.workflows.bootstrap import BootInterval, BootstrapResult
+
+    fitted = cfa_tool.fit(THREE_FACTORS, hs_data)
+    table = modification_table(fitted)
+    shown = fitted.reported_modification_indices()[:len(table.rows)]
+    assert [row[0] for row in table.rows] == [parameter_words(m.kind, tuple(m.variables), article=False) for m in shown]
+    assert "loading of x9 on visual" in [row[0] for row in table.rows]  # the largest index of this model
+    assert [tuple(row[:2]) for row in table.values] == [(m.kind, ", ".join(m.variables)) for m in shown]
+    grouped = modification_table(cfa_tool.fit(THREE_FACTORS, hs_data, group="school"))
+    assert all(re.search(r" in group (Pasteur|Grant-White)$", row[0]) for row in grouped.rows)
+    intervals = (BootInterval("loading", ("visual", "x2"), "unstandardized", 0.55, (0.3, 0.8), (0.31, 0.81), 0.1),
+                 BootInterval("residual_covariance", ("x7", "x8"), "standardized", 0.2, (0.1, 0.3), (0.1, 0.3), 0.05))
+    report = bootstrap_report(BootstrapResult(fitted, 500, 500, 1, intervals, None, None))
+    assert [row[0] for row in report.tables[0].rows] == ["loading of x2 on visual", "residual covariance of x7 and x8"]
+    assert not MACHINE.search(_plain(report_text(report, 100)))
