@@ -15,6 +15,8 @@ general factor of a bifactor model and method factors (grey).  Residual
 circles then sit beside their items, so the lines from the bottom row reach
 the items unobstructed.  A model whose items do not fit in one row of
 ``MAX_WIDTH`` is drawn in bands of whole factors, one band under the other;
+a factor whose items alone are much wider than a band goes on in the next band,
+named there, its loadings to those items listed;
 its factor correlations, and residual correlations that would join two bands,
 are then listed at the top of the drawing instead of arcs crossing the bands;
 so are correlations between a factor of the bottom row and one above it.  The
@@ -43,6 +45,9 @@ SIDE_GAP = 10  # between an item and its residual beside it
 MARGIN = 30.0
 MAX_WIDTH = 1000.0  # a band of items wider than this is broken into the next band (fits a page at about 6 pt)
 BAND_GAP = 40.0
+# a factor whose items are wider than this is drawn in parts over several bands (a little wider than a band, it is
+# drawn whole: a slightly wider picture reads better than a factor cut in two)
+SPLIT_BEYOND = 1.1 * (MAX_WIDTH - 2 * MARGIN)
 TEXT_EM = 0.62  # width of a character in ems, on the safe side for Helvetica and Arial (widest digits: 0.556)
 PROBLEM_COLOUR = "#b3261e"  # parts of the drawing that show a problem of the solution
 METHOD_FILL = "#e6e6e6"  # method factors: a way of answering, not a trait
@@ -120,6 +125,7 @@ class _Layout:
     apart: frozenset[str] = frozenset()  # factors drawn in a row above the bands, their loadings listed
     listed_loadings: list[tuple[str, str]] = field(default_factory=list)  # (factor, item or factor) listed, not drawn
     table_top: float = MARGIN  # where the lists of values not drawn begin
+    continued: list[tuple[str, tuple[str, ...]]] = field(default_factory=list)  # (factor, its items in a later band)
 
 
 def _cross_factors(latent, children, obs_set, methods) -> frozenset[str]:
@@ -179,6 +185,10 @@ def _layout(result, rows, obs_set) -> _Layout:
             blocks[-1].append(x)
         else:
             blocks.append([x])
+    if wrap:  # a factor whose items alone are much wider than a band goes on over the next bands, in even parts
+        blocks = [part for block in blocks for part in
+                  (_parts(block, step, MAX_WIDTH - 2 * MARGIN) if sum(step[x] for x in block) > SPLIT_BEYOND
+                   else [block])]
     bands: list[list[str]] = [[]]
     for block in blocks:
         used = sum(step[x] for x in bands[-1])
@@ -191,6 +201,10 @@ def _layout(result, rows, obs_set) -> _Layout:
     for f in latent:
         kids = [home_item for home_item in children[f] if home_item in lay.band_of]
         lay.band_of[f] = -1 if f in lay.apart else min((lay.band_of[k] for k in kids), default=0)
+    for block in blocks:  # the parts of a factor drawn in a band under the one that holds its ellipse
+        f = home.get(block[0])
+        if f is not None and f not in lay.apart and lay.band_of[f] != lay.band_of[block[0]]:
+            lay.continued.append((f, tuple(block)))
     # x positions: items band by band from the left margin, factors over their own items
     for band in bands:
         x = MARGIN
@@ -202,7 +216,7 @@ def _layout(result, rows, obs_set) -> _Layout:
     for lvl in range(1, top + 1):
         for f in [f for f in latent if level[f] == lvl and f not in lay.apart]:
             kids = [c for c in children[f] if c in lay.centre]
-            own = [c for c in kids if home.get(c) == f] or kids
+            own = [c for c in kids if home.get(c) == f and lay.band_of[c] == lay.band_of[f]] or kids
             lay.centre[f] = sum(lay.centre[c] for c in own) / len(own) if own else width / 2
     _spread_factors([f for f in latent if f not in lay.apart],
                     {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre, disturbed)
@@ -244,7 +258,7 @@ def _layout(result, rows, obs_set) -> _Layout:
         spans = [abs(lay.centre[r.variables[0]] - lay.centre[r.variables[1]]) for r in arcs]
         y += max((_lift(s) for s in spans), default=0.0) + (24 if arcs else 0)
         levels = max((level[f] for f in in_band), default=1)
-        y_ind = y + levels * ROW_GAP
+        y_ind = y + (levels * ROW_GAP if in_band else 36)  # a band of items only: room for the name over them
         for f in in_band:
             lay.y_of[f] = y_ind - level[f] * ROW_GAP + BOX_H / 2
         for x in bands[b]:
@@ -273,6 +287,22 @@ def _disturbed(rows, latent, children) -> set[str]:
     """Factors explained by a higher-order factor: they get a disturbance circle at their right."""
     below = {c for f in latent for c in children[f]}
     return {r.variables[0] for r in rows if r.kind == "factor_variance" and r.variables[0] in below}
+
+
+def _parts(block: list[str], step: dict[str, float], room: float) -> list[list[str]]:
+    """A factor's items in as few parts of about equal size as fit in ``room`` each (one part when they fit)."""
+    count = max(1, math.ceil(sum(step[x] for x in block) / room))
+    while True:
+        size = math.ceil(len(block) / count)
+        parts = [block[k:k + size] for k in range(0, len(block), size)]
+        if all(sum(step[x] for x in part) <= room for part in parts) or size == 1:
+            return parts
+        count += 1
+
+
+def continued_label(factor: str) -> str:
+    """What stands over a factor's items drawn in a band under its ellipse."""
+    return f"{factor}, continued (loadings listed above)"
 
 
 def _apart_width(f: str, disturbed: set[str]) -> float:
@@ -458,6 +488,10 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
             bad = flagged(r.kind, r.variables)
             parts.append(_arc(xa, y, xb, y, y + drop * 2, "residual-covariance", bad))
             parts.append(_label((xa + xb) / 2, y + drop + 4, unit(r.standardized, 2), problem=bad))  # on the arc's lowest point
+    # the items of a factor that go on in a later band: named over them, their loadings listed above
+    for f, items in lay.continued:
+        x = (lay.centre[items[0]] + lay.centre[items[-1]]) / 2
+        parts.append(_label(x, y_of[items[0]] - 12, continued_label(f), size=12, cls="continued"))
     # factors
     for f in latent:
         rx = _ellipse_rx(f)

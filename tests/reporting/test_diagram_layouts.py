@@ -122,11 +122,22 @@ def shapes(hs_data):
                                                        for j in range(4))
                                              + "scale latent by variance\nuncorrelated general, part_1, part_2, part_3, part_4\n",
                                              data)
+    # two traits of 20 items each and a method factor on every fourth item: each trait is wider than a band
+    loadings = np.zeros((40, 3))
+    loadings[:20, 0] = loadings[20:, 1] = 0.7
+    loadings[1::4, 2] = 0.4
+    phi = np.eye(3)
+    phi[0, 1] = phi[1, 0] = 0.4
+    names = [f"v{i + 1}" for i in range(40)]
+    data = simulate_cfa(loadings, phi, np.diag(np.full(40, 0.4)), 1500, 10, names)
+    out["method factor, 40 items"] = cfa_tool.fit("factor trust: v1..v20\nfactor loyalty: v21..v40\nfactor wording: "
+                                                  + ", ".join(names[1::4]) + "\nmethod wording\nuncorrelated wording, trust\n"
+                                                  "uncorrelated wording, loyalty\nscale latent by variance\n", data)
     return out
 
 
 LAYOUTS = ("small", "higher-order", "groups", "bifactor", "method factor", "method factor, correlated", "exploratory block",
-           "60 items", "higher-order, 60 items", "bifactor, 48 items")
+           "60 items", "higher-order, 60 items", "bifactor, 48 items", "method factor, 40 items")
 
 
 @pytest.mark.parametrize("shape", LAYOUTS)
@@ -263,7 +274,7 @@ def test_correlations_of_the_bottom_row_with_factors_above_are_listed_not_drawn(
     assert svg.count('class="covariance') == 1  # trust with loyalty, drawn as an arc
 
 
-@pytest.mark.parametrize("shape", ["higher-order, 60 items", "bifactor, 48 items"])
+@pytest.mark.parametrize("shape", ["higher-order, 60 items", "bifactor, 48 items", "method factor, 40 items"])
 def test_a_big_model_is_drawn_in_bands_as_wide_as_a_page_and_every_loading_is_drawn_or_listed(shapes, shape):
     """A model too wide for one row is drawn in bands no wider than ``MAX_WIDTH``; a factor whose lines would cross
     the bands (the higher-order factor, the general factor) is drawn once above them, and each of its loadings is
@@ -281,6 +292,12 @@ def test_a_big_model_is_drawn_in_bands_as_wide_as_a_page_and_every_loading_is_dr
     arrows = len(root.findall(f".//{SVG}line[@class='loading']"))
     rows = [r for r in result.estimates if r.kind == "loading"]
     assert arrows + len(listed) == len(rows)
-    apart = {"higher-order, 60 items": {"g"}, "bifactor, 48 items": {"general"}}[shape]
+    apart = {"higher-order, 60 items": {"g"}, "bifactor, 48 items": {"general"},
+             "method factor, 40 items": {"wording"}}[shape]
+    # a trait wider than a band goes on in the next band, named there: its loadings on those items are listed
+    continued = {"method factor, 40 items": {f"v{i}" for i in (*range(11, 21), *range(31, 41))}}.get(shape, set())
     assert sorted(listed) == sorted(f"{r.variables[1]} on {r.variables[0]}: {unit(r.standardized, 2)}"
-                                    for r in rows if r.variables[0] in apart)
+                                    for r in rows if r.variables[0] in apart or r.variables[1] in continued)
+    named = re.findall(r'class="continued"[^>]*>([^<]*)<', svg)
+    assert named == (["trust, continued (loadings listed above)", "loyalty, continued (loadings listed above)"]
+                     if continued else [])
