@@ -172,39 +172,31 @@ def _layout(result, rows, obs_set) -> _Layout:
     lay.widths = {x: _box_width(x) for x in lay.order}
     # a model whose items do not fit in one row is drawn in bands of whole factors; the factors whose lines
     # would cross the bands (higher-order, general and method factors) are then drawn apart, above the bands
-    one_row = sum(lay.widths[x] + BOX_GAP for x in lay.order)
-    wrap = one_row > MAX_WIDTH - 2 * MARGIN
-    lay.apart = frozenset(f for f in latent if wrap and (level[f] > 1 or f in cross))
-    lay.bottom = frozenset() if wrap else cross
-    lay.side_residuals = bool(lay.bottom)
-    step = {x: lay.widths[x] + (SIDE_GAP + 2 * RESIDUAL_R + BOX_GAP // 2 if lay.side_residuals else BOX_GAP)
-            for x in lay.order}
     blocks: list[list[str]] = []
     for x in lay.order:
         if blocks and home.get(x) == home.get(blocks[-1][0]):
             blocks[-1].append(x)
         else:
             blocks.append([x])
-    if wrap:  # a factor whose items alone are much wider than a band goes on over the next bands, in even parts
-        blocks = [part for block in blocks for part in
-                  (_parts(block, step, MAX_WIDTH - 2 * MARGIN) if sum(step[x] for x in block) > SPLIT_BEYOND
-                   else [block])]
-    bands: list[list[str]] = [[]]
-    for block in blocks:
-        used = sum(step[x] for x in bands[-1])
-        if wrap and bands[-1] and used + sum(step[x] for x in block) > MAX_WIDTH - 2 * MARGIN:
-            bands.append([])
-        bands[-1].extend(block)
+    bands = _bands(blocks, {x: lay.widths[x] + BOX_GAP for x in lay.order})
+    wrap = len(bands) > 1  # (a model of one factor too wide for a band stays one row)
+    lay.apart = frozenset(f for f in latent if wrap and (level[f] > 1 or f in cross))
+    lay.bottom = frozenset() if wrap else cross
+    lay.side_residuals = bool(lay.bottom)
+    step = {x: lay.widths[x] + (SIDE_GAP + 2 * RESIDUAL_R + BOX_GAP // 2 if lay.side_residuals else BOX_GAP)
+            for x in lay.order}
+    if not wrap:
+        bands = [list(lay.order)]
     for b, band in enumerate(bands):
         for x in band:
             lay.band_of[x] = b
     for f in latent:
         kids = [home_item for home_item in children[f] if home_item in lay.band_of]
         lay.band_of[f] = -1 if f in lay.apart else min((lay.band_of[k] for k in kids), default=0)
-    for block in blocks:  # the parts of a factor drawn in a band under the one that holds its ellipse
-        f = home.get(block[0])
-        if f is not None and f not in lay.apart and lay.band_of[f] != lay.band_of[block[0]]:
-            lay.continued.append((f, tuple(block)))
+    for b, band in enumerate(bands):  # the part of a factor drawn in a band under the one that holds its ellipse
+        for f in dict.fromkeys(home.get(x) for x in band):
+            if f is not None and f not in lay.apart and lay.band_of[f] != b:
+                lay.continued.append((f, tuple(x for x in band if home.get(x) == f)))
     # x positions: items band by band from the left margin, factors over their own items
     for band in bands:
         x = MARGIN
@@ -287,6 +279,22 @@ def _disturbed(rows, latent, children) -> set[str]:
     """Factors explained by a higher-order factor: they get a disturbance circle at their right."""
     below = {c for f in latent for c in children[f]}
     return {r.variables[0] for r in rows if r.kind == "factor_variance" and r.variables[0] in below}
+
+
+def _bands(blocks: list[list[str]], step: dict[str, float]) -> list[list[str]]:
+    """The items in bands no wider than ``MAX_WIDTH`` of whole factors (``blocks``), as many to a band as fit; a
+    factor much wider than a band (``SPLIT_BEYOND``) in even parts over several bands."""
+    room = MAX_WIDTH - 2 * MARGIN
+    if sum(step.values()) <= room:
+        return [[x for block in blocks for x in block]]
+    parts = [part for block in blocks for part in
+             (_parts(block, step, room) if sum(step[x] for x in block) > SPLIT_BEYOND else [block])]
+    bands: list[list[str]] = [[]]
+    for part in parts:
+        if bands[-1] and sum(step[x] for x in bands[-1]) + sum(step[x] for x in part) > room:
+            bands.append([])
+        bands[-1].extend(part)
+    return bands
 
 
 def _parts(block: list[str], step: dict[str, float], room: float) -> list[list[str]]:
