@@ -65,20 +65,29 @@ def overlaps(svg: str) -> list[str]:
     return found
 
 
+def _bifactor(items: int, parts: int, rows: int, seed: int):
+    """A bifactor model fitted to data simulated from it: a general factor on every item (loadings .6) and
+    ``parts`` specific factors on consecutive items (.5), all uncorrelated."""
+    size = items // parts
+    loadings = np.zeros((items, parts + 1))
+    loadings[:, 0] = 0.6
+    for i in range(items):
+        loadings[i, 1 + i // size] = 0.5
+    names = [f"item{i + 1:02d}" for i in range(items)]
+    data = simulate_cfa(loadings, np.eye(parts + 1), np.diag(np.full(items, 0.4)), rows, seed, names)
+    specific = [f"part_{j + 1}" for j in range(parts)]
+    return cfa_tool.fit(f"factor general: item01..{names[-1]}\n"
+                        + "".join(f"factor {f}: {names[size * j]}..{names[size * j + size - 1]}\n" for j, f in enumerate(specific))
+                        + "scale latent by variance\nuncorrelated general, " + ", ".join(specific) + "\n", data)
+
+
 @pytest.fixture(scope="module")
 def shapes(hs_data):
     out = {"small": cfa_tool.fit(THREE_FACTORS + "covary x1, x4\ncovary x7, x9\n", hs_data),
            "higher-order": cfa_tool.fit(THREE_FACTORS + "factor ability: visual, textual, speed\n", hs_data),
            "groups": cfa_tool.fit(THREE_FACTORS, hs_data, group="school")}
     # bifactor: a general factor on every item, three specific factors, all uncorrelated
-    loadings = np.zeros((12, 4))
-    loadings[:, 0] = 0.6
-    for i in range(12):
-        loadings[i, 1 + i // 4] = 0.5
-    data = simulate_cfa(loadings, np.eye(4), np.diag(np.full(12, 0.4)), 800, 5, [f"item{i + 1:02d}" for i in range(12)])
-    out["bifactor"] = cfa_tool.fit("factor general: item01..item12\nfactor part_a: item01..item04\n"
-                                   "factor part_b: item05..item08\nfactor part_c: item09..item12\n"
-                                   "scale latent by variance\nuncorrelated general, part_a, part_b, part_c\n", data)
+    out["bifactor"] = _bifactor(12, 3, 800, 5)
     # a method factor on the reverse-keyed items of two traits
     loadings = np.zeros((10, 3))
     loadings[:5, 0] = loadings[5:, 1] = 0.7
@@ -112,16 +121,7 @@ def shapes(hs_data):
     out["higher-order, 60 items"] = cfa_tool.fit("".join(f"factor f{j + 1}: " + ", ".join(names[6 * j:6 * j + 6]) + "\n"
                                                          for j in range(10))
                                                  + "factor g: " + ", ".join(f"f{j + 1}" for j in range(10)) + "\n", data)
-    loadings = np.zeros((48, 5))
-    loadings[:, 0] = 0.6
-    for i in range(48):
-        loadings[i, 1 + i // 12] = 0.5
-    data = simulate_cfa(loadings, np.eye(5), np.diag(np.full(48, 0.4)), 1500, 9, [f"item{i + 1:02d}" for i in range(48)])
-    out["bifactor, 48 items"] = cfa_tool.fit("factor general: item01..item48\n"
-                                             + "".join(f"factor part_{j + 1}: item{12 * j + 1:02d}..item{12 * j + 12:02d}\n"
-                                                       for j in range(4))
-                                             + "scale latent by variance\nuncorrelated general, part_1, part_2, part_3, part_4\n",
-                                             data)
+    out["bifactor, 48 items"] = _bifactor(48, 4, 1500, 9)
     # two traits of 20 items each and a method factor on every fourth item: each trait is wider than a band
     loadings = np.zeros((40, 3))
     loadings[:20, 0] = loadings[20:, 1] = 0.7
