@@ -57,6 +57,11 @@ class ProblemKind(enum.Enum):
     WEAK_METHOD_FACTOR = ("weak method factor", "small loadings only", False)
 
 
+#: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them
+#: beside the design)
+DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.SMALL_EFFECTIVE_SAMPLE})
+
+
 @dataclass(frozen=True)
 class Problem:
     """One problem of a solution.  ``parameters`` are parameter labels as the parameter table writes them

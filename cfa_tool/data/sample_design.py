@@ -187,7 +187,14 @@ class SampleDesign:
         if lone:
             after += f" {lone[0].upper()}{lone[1:]}."
         if ordinal:
-            weights = ("The least-squares weights come from the design-based covariance of the thresholds and "
+            weights = ("The least-squares weights come from the variances of the thresholds and correlations with the "
+                       "rows taken as independent" + (" (weights applied)" if c.weights is not None else "")
+                       + f", so the {' and '.join(x for x, col in (('clusters', c.cluster), ('strata', c.strata)) if col)}"
+                       " change the standard errors and the test but not the estimates; "
+                       "the standard errors and the scale-shifted test come from the design-based covariance of the "
+                       "thresholds and correlations"
+                       if weighted_least_squares and (c.cluster is not None or c.strata is not None) else
+                       "The least-squares weights come from the design-based covariance of the thresholds and "
                        "correlations; the standard errors and the scale-shifted test come from it too" if
                        weighted_least_squares else
                        "The standard errors and the scale-shifted test come from the design-based covariance of the "

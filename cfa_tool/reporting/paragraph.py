@@ -15,7 +15,7 @@ import math
 
 from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
-from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
@@ -390,6 +390,8 @@ def methods_paragraph(result) -> str:
     design = getattr(result, "design", None)
     if design is not None:
         parts.append(design_sentence(result))
+        # the design's own cautions (too few clusters, a small effective sample) belong beside the design they doubt
+        parts += [p.explanation for p in result.problems if p.kind in DESIGN_CAUTIONS]
     inadmissible = not result.admissible
     if inadmissible:
         serious = [p for p in result.problems if p.kind.inadmissible]
