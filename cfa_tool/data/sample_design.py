@@ -145,7 +145,8 @@ class SampleDesign:
                  correlations: str = "polychoric correlations", weighted_least_squares: bool = True) -> str:
         """The design in the words of a methods paragraph, as the code uses it (``ordinal``: of a fit to thresholds
         and ``correlations``, e.g. 'tetrachoric correlations', whose least-squares weights, when
-        ``weighted_least_squares``, come from their design-based covariance)."""
+        ``weighted_least_squares``, come from their variances: with the rows taken as independent under clusters or
+        strata, by the design otherwise)."""
         c = self.columns
         parts = []
         if c.weights is not None:
