@@ -188,23 +188,27 @@ def sum_table(result, k: int) -> ReportTable | None:
         return None
     rho = dict(zip(q.factors, q.determinacy))
     if not hasattr(q, "methods"):  # ordinal items: the sum of the answers' codes (Green & Yang 2009)
-        rel = dict(zip(q.factors, q.reliability))
-        rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(rel[s.factor])]
-                for s in q.sums]
+        rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(s.validity),
+                 unit(rho[s.factor])] for s in q.sums]
         return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
-                      [("Factor", "l"), ("Items", "r"), ("Reversed for the sum", "l"), ("Sum omega", "r"),
-                       ("Score reliability", "r")], rows,
-                      "The unit-weighted sum of the answers' codes of each factor's items (reverse-keyed items "
-                      "reversed); sum omega: its reliability from the fitted thresholds, loadings and factor variance "
-                      "(Green & Yang 2009), beside the reliability of the posterior-mean scores in these data (as in "
-                      "the quality table): what the simpler score loses.")
+                      [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"),
+                       ("Sum's r", "r"), ("Score's r", "r")], rows,
+                      "The unit-weighted sum of the answers' codes of each factor's items (reversed: the "
+                      "reverse-keyed items, reversed in the sum). Sum omega: its reliability from the fitted thresholds, loadings and factor variance "
+                      "(Green & Yang 2009), the agreement of the sum with its own true score, which with answer "
+                      "categories is a curved function of the factor, so it is not comparable with a score's "
+                      "agreement with the factor. Sum's r: the sum's correlation with the factor under the fitted "
+                      "model; score's r: the posterior-mean score's in these data (the square root of its reliability "
+                      "in the quality table); the two show what the simpler score loses.")
     rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(s.validity), unit(rho[s.factor])]
             for s in q.sums]
     return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
-                  [("Factor", "l"), ("Items", "r"), ("Reversed for the sum", "l"), ("Omega of the sum", "r"),
-                   ("Sum with factor r", "r"), ("Regression score with factor r", "r")], rows,
-                  "The unit-weighted sum of each factor's items (reverse-keyed items reversed); omega of that sum "
-                  "(McDonald 1999). The last two columns show what the simpler score loses against the factor score.")
+                  [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"), ("Sum's r", "r"),
+                   ("Score's r", "r")], rows,
+                  "The unit-weighted sum of each factor's items (reversed: the reverse-keyed items, reversed in the "
+                  "sum); sum omega: its reliability (McDonald 1999); sum's r and score's r: the correlations of the "
+                  "sum and of the regression score with the factor under the fitted model, which show what the "
+                  "simpler score loses against the factor score.")
 
 
 def unscored_table(result) -> ReportTable | None:

@@ -147,7 +147,7 @@ class OrdinalQuality:
                       "factor_correlations": None if self.factor_correlations is None else
                       self.factor_correlations.tolist(),
                       "score_correlations": None if self.score_correlations is None else self.score_correlations.tolist(),
-                      "sums": [{k: v for k, v in s.to_dict().items() if k != "validity"} for s in self.sums]})
+                      "sums": [s.to_dict() for s in self.sums]})
 
 
 @dataclass(frozen=True, eq=False)

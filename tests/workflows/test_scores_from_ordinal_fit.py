@@ -147,4 +147,6 @@ def test_the_ordinal_scores_report_gives_score_correlations_and_the_sum_with_its
     assert "score_correlations_0" in keys and "score_sums_0" in keys
     assert ORDINAL_NOTE in result.fit.warnings and ORDINAL_NOTE not in report.notes
     out = result.to_dict()["quality"][0]
-    assert len(out["sums"]) == 2 and "validity" not in out["sums"][0]
+    assert len(out["sums"]) == 2 and all(0 < s["validity"] < 1 for s in out["sums"])
+    sums = next(t for t in report.tables if t.key == "score_sums_0")
+    assert "Sum's r" in sums.columns and "not comparable" in sums.note
