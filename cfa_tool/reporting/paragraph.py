@@ -57,6 +57,16 @@ def design_sentence(result) -> str:
                                   method.weighting is Weighting.DIAGONAL)
 
 
+def _design_sentences(results) -> list[str]:
+    """The design of fits of the same rows (the first's words) and its cautions (too few clusters, a small effective
+    sample), those of the fit with the most free parameters, which they weigh on most: beside the design they doubt."""
+    first = results[0]
+    if getattr(first, "design", None) is None:
+        return []
+    most = max(results, key=lambda r: len(r.parameter_labels))
+    return [design_sentence(first)] + [p.explanation for p in most.problems if p.kind in DESIGN_CAUTIONS]
+
+
 def _estimator_phrase(result) -> str:
     method = result.method
     if method.ordinal:
@@ -387,11 +397,7 @@ def methods_paragraph(result) -> str:
     matrix = _matrix_sentence(result)
     if matrix:  # right after the sentence naming the estimation and N
         parts.insert(1, matrix)
-    design = getattr(result, "design", None)
-    if design is not None:
-        parts.append(design_sentence(result))
-        # the design's own cautions (too few clusters, a small effective sample) belong beside the design they doubt
-        parts += [p.explanation for p in result.problems if p.kind in DESIGN_CAUTIONS]
+    parts += _design_sentences([result])
     inadmissible = not result.admissible
     if inadmissible:
         serious = [p for p in result.problems if p.kind.inadmissible]
@@ -532,9 +538,7 @@ def comparison_paragraph(comparison) -> str:
     if matrix:  # summary statistics: said once, right after what was compared
         parts.append(matrix)
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
-    design = getattr(first, "design", None)
-    if design is not None:
-        parts.append(design_sentence(first))
+    parts += _design_sentences(list(results))
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
     for name, r in zip(names, results):  # problems first: before the figures a reader might take as support
         if r.converged and not r.admissible:
@@ -687,9 +691,7 @@ def invariance_paragraph(result, levels) -> str:
         departures = _departures(d)
         if departures:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))
-    design = getattr(first, "design", None)
-    if design is not None:
-        parts.append(design_sentence(first))
+    parts += _design_sentences([s.result for s in steps])
     methods = sorted({s.versus_previous.method for s in steps[1:] if s.versus_previous is not None
                       and not s.versus_previous.not_computed}, key=_PREFERRED.index)
     rule = result.rule.description.replace("alpha", unit(result.alpha, 2)).replace(">=", "\u2265")
