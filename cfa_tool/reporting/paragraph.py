@@ -364,12 +364,18 @@ def _method_items(result, factor: str) -> list[str]:
 
 
 def _weak_factor_sentence(result, subject: str) -> str:
-    """A sentence on the method factors of ``result`` that carry next to nothing ('' when there are none)."""
+    """Sentences on the method factors of ``result`` that carry next to nothing and on factors that point against
+    their items ('' when there are none)."""
     weak = [p.phrase() for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
-    if not weak:
-        return ""
-    return (f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): its items share little "
-            f"beyond the other factors they load on.")
+    turned = [p.phrase() for p in result.problems if p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS]
+    parts = []
+    if weak:
+        parts.append(f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): its items share "
+                     f"little beyond the other factors they load on.")
+    if turned:
+        parts.append(f"{subject} has {_list(turned)}: its correlations, mean differences and scores read the wrong "
+                     f"way.")
+    return " ".join(parts)
 
 
 def methods_paragraph(result) -> str:
