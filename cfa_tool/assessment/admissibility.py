@@ -55,6 +55,14 @@ class ProblemKind(enum.Enum):
     VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
     # a method or bifactor-like factor whose standardized loadings are all small (assessment.method_factors)
     WEAK_METHOD_FACTOR = ("weak method factor", "small loadings only", False)
+    # a factor whose loadings mostly run against its items' keying (assessment.reliability.keying_problems): its
+    # correlations, mean differences and scores read the wrong way
+    FACTOR_POINTS_AGAINST_ITEMS = ("factor points against its items", "points against its items", False)
+
+
+#: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them
+#: beside the design)
+DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.SMALL_EFFECTIVE_SAMPLE})
 
 
 @dataclass(frozen=True)
@@ -105,6 +113,8 @@ class Problem:
             K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
+            K.FACTOR_POINTS_AGAINST_ITEMS: f"factor {', '.join(names)} pointing against its items (a higher score "
+                                           f"means less of what most of them ask)",
         }[self.kind]
         return text + (f" in group {self.group}" if self.group is not None else "")
 

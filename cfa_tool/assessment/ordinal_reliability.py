@@ -31,6 +31,27 @@ from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.numerics.bivariate import bivariate_cdf
 
 
+def _keyed_codes(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndarray], mean: np.ndarray, sd: np.ndarray,
+                 keys: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(item, t, d): for every threshold of the items, its item, its standardized value t_ic and its keyed step
+    k_i d_ic (module docstring)."""
+    item = np.concatenate([np.full(len(t), i) for i, t in enumerate(thresholds)])
+    t = np.concatenate([(np.asarray(t, float) - mean[i]) / sd[i] for i, t in enumerate(thresholds)])
+    d = np.concatenate([np.asarray(s, float) for s in steps]) * np.asarray(keys, float)[item]
+    return item, t, d
+
+
+def _sum_variance(item: np.ndarray, t: np.ndarray, d: np.ndarray, rho: np.ndarray) -> float:
+    """The first line of the module docstring summed over the keyed items: Var(X) under the model (``rho``: the
+    latent responses' correlations, or the part of them due to the factor for Var(E[X | f]))."""
+    h, k = np.meshgrid(t, t, indexing="ij")
+    joint = bivariate_cdf(h, k, rho[np.ix_(item, item)])
+    same = item[:, None] == item[None, :]
+    if np.allclose(np.diag(rho), 1.0):  # one latent response with itself: correlation 1 exactly
+        joint[same] = special.ndtr(np.minimum(h, k))[same]
+    return float(d @ (joint - np.outer(special.ndtr(t), special.ndtr(t))) @ d)
+
+
 def observed_sum_omega(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndarray], mean: np.ndarray,
                        sigma: np.ndarray, common: np.ndarray, keys: np.ndarray) -> float:
     """Green & Yang's (2009) reliability of the keyed sum of ordinal answers (module docstring).
@@ -40,19 +61,29 @@ def observed_sum_omega(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndar
     responses' implied means and covariance matrix, ``common`` the covariance due to the factor
     (G_if G_jf Phi_ff) and ``keys`` +1 or -1 per item."""
     sd = np.sqrt(np.diag(sigma))
-    item = np.concatenate([np.full(len(t), i) for i, t in enumerate(thresholds)])
-    t = np.concatenate([(np.asarray(t, float) - mean[i]) / sd[i] for i, t in enumerate(thresholds)])
-    d = np.concatenate([np.asarray(s, float) for s in steps]) * np.asarray(keys, float)[item]
-    rho = (sigma / np.outer(sd, sd))[np.ix_(item, item)]
-    rho_common = (common / np.outer(sd, sd))[np.ix_(item, item)]
-    h, k = np.meshgrid(t, t, indexing="ij")
-    margins = np.outer(special.ndtr(t), special.ndtr(t))
-    joint = bivariate_cdf(h, k, rho)
-    same = item[:, None] == item[None, :]
-    joint[same] = special.ndtr(np.minimum(h, k))[same]  # one latent response with itself: correlation 1 exactly
-    total = float(d @ (joint - margins) @ d)
-    due = float(d @ (bivariate_cdf(h, k, rho_common) - margins) @ d)
+    item, t, d = _keyed_codes(thresholds, steps, mean, sd, keys)
+    total = _sum_variance(item, t, d, sigma / np.outer(sd, sd))
+    due = _sum_variance(item, t, d, common / np.outer(sd, sd))
     return due / total if total > 0 else float("nan")
+
+
+def observed_sum_factor_correlation(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndarray], mean: np.ndarray,
+                                    sigma: np.ndarray, with_factor: np.ndarray, factor_variance: float,
+                                    keys: np.ndarray) -> float:
+    """The correlation of the keyed sum of ordinal answers X with the factor f under the fitted model, the
+    counterpart of a factor score's correlation with its factor (Grice 2001): Cov(X, f) = sum_i k_i sum_c d_ic
+    phi(t_ic) Cov(y*_i, f) / sigma_i, since for a bivariate normal pair Cov([y* > tau], f) = phi(t) Cov(y*, f) /
+    sigma (Stein's lemma), and Var(X) as in :func:`observed_sum_omega`.  Unlike that omega, whose true score
+    E[X | f] is a curved function of f when answers are categories, this is the sum's linear agreement with the
+    factor itself.  ``with_factor``: Cov(y*_i, f) of the items (their loadings times the factor's covariances)."""
+    sd = np.sqrt(np.diag(sigma))
+    item, t, d = _keyed_codes(thresholds, steps, mean, sd, keys)
+    variance = _sum_variance(item, t, d, sigma / np.outer(sd, sd))
+    density = np.exp(-0.5 * t**2) / np.sqrt(2.0 * np.pi)
+    covariance = float(d @ (density * (np.asarray(with_factor, float) / sd)[item]))
+    if variance <= 0 or factor_variance <= 0:
+        return float("nan")
+    return covariance / np.sqrt(variance * factor_variance)
 
 
 def with_observed_sum_omega(factors: Sequence[FactorReliability], mats: ModelMatrices, observed: tuple[str, ...],

@@ -293,8 +293,7 @@ def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") 
     against their items (so that every correlation, mean difference and score of theirs reads the wrong way)."""
     out = []
     for r in factors:
-        if r.points_against:
-            out.append(_turned_warning(r, prefix))
+        if r.points_against:  # a problem of the solution, not a note: keying_problems
             continue
         if r.evenly_split:
             out.append(_split_warning(r, prefix))
@@ -320,17 +319,33 @@ def _split_warning(r: FactorReliability, prefix: str) -> str:
             f"other items and keys the sums")
 
 
-def _turned_warning(r: FactorReliability, prefix: str) -> str:
-    """The caution for a factor that points against its items (``points_against``)."""
+def _turned_warning(r: FactorReliability) -> tuple[str, str]:
+    """(what is wrong, what to try) for a factor that points against its items (``points_against``)."""
     with_keys = [x for x in r.items if x not in r.reversed]  # the items whose answers rise with the factor
     if r.keying is Keying.DECLARED:
-        return (f"{prefix}factor '{r.factor}' points against its items: the items not declared reversed load "
-                f"negatively, so a higher '{r.factor}' means less of what they ask, and its correlations, mean "
-                f"differences and scores read the wrong way; fix the loading of an item not declared reversed at 1 "
-                f"as its marker (the automatic marker does so), or check the 'reversed' statement")
+        return (f"Factor '{r.factor}' points against its items: the items not declared reversed load negatively, so "
+                f"a higher '{r.factor}' means less of what they ask, and its correlations, mean differences and scores "
+                f"read the wrong way.",
+                "fix the loading of an item not declared reversed at 1 as its marker (the automatic marker does so), "
+                "or check the 'reversed' statement.")
     few = ", ".join(r.reversed)
     one = len(r.reversed) == 1
-    return (f"{prefix}factor '{r.factor}' points the way of {few}, against most of its items ({', '.join(with_keys)} "
-            f"load negatively), so a higher '{r.factor}' means lower answers on most of its items; if {few} "
-            f"{'is' if one else 'are'} worded against the trait, declare {'it' if one else 'them'} with 'reversed "
-            f"{few} on LOWEST to HIGHEST', which orients the factor by its other items and keys the sums")
+    return (f"Factor '{r.factor}' points the way of {few}, against most of its items ({', '.join(with_keys)} load "
+            f"negatively), so a higher '{r.factor}' means lower answers on most of its items.",
+            f"if {few} {'is' if one else 'are'} worded against the trait, declare {'it' if one else 'them'} with "
+            f"'reversed {few} on LOWEST to HIGHEST', which orients the factor by its other items and keys the sums.")
+
+
+def keying_problems(groups) -> list:
+    """A caution, first in every view, for each factor of each group (``groups``: GroupResult, with their
+    reliability rows) that points against its items."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    out = []
+    for g in groups:
+        for r in g.reliability:
+            if r.points_against:
+                explanation, advice = _turned_warning(r)
+                out.append(Problem(ProblemKind.FACTOR_POINTS_AGAINST_ITEMS, (f"factor_variance({r.factor})",), None,
+                                   explanation, advice, g.label if len(groups) > 1 else None))
+    return out

@@ -71,6 +71,9 @@ class OrdinalMoments:
     #: beside continuous items: asymptotic covariance of sqrt(N)(s - sigma) for s = (all thresholds, the continuous
     #: items' means, their variances, then the correlations): the statistics of a fit in several groups
     mixed_gamma: np.ndarray | None = field(repr=False, default=None)
+    #: under clusters or strata: the variances of (all thresholds, then the correlations) with the rows taken as
+    #: independent (weights applied), the diagonal the least-squares weights come from (None: diag(joint_gamma))
+    weight_variances: np.ndarray | None = field(repr=False, default=None)
 
     @property
     def pairwise(self) -> bool:

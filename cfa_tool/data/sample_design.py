@@ -145,7 +145,8 @@ class SampleDesign:
                  correlations: str = "polychoric correlations", weighted_least_squares: bool = True) -> str:
         """The design in the words of a methods paragraph, as the code uses it (``ordinal``: of a fit to thresholds
         and ``correlations``, e.g. 'tetrachoric correlations', whose least-squares weights, when
-        ``weighted_least_squares``, come from their design-based covariance)."""
+        ``weighted_least_squares``, come from their variances: with the rows taken as independent under clusters or
+        strata, by the design otherwise)."""
         c = self.columns
         parts = []
         if c.weights is not None:
@@ -187,7 +188,14 @@ class SampleDesign:
         if lone:
             after += f" {lone[0].upper()}{lone[1:]}."
         if ordinal:
-            weights = ("The least-squares weights come from the design-based covariance of the thresholds and "
+            weights = ("The least-squares weights come from the variances of the thresholds and correlations with the "
+                       "rows taken as independent" + (" (weights applied)" if c.weights is not None else "")
+                       + f", so the {' and '.join(x for x, col in (('clusters', c.cluster), ('strata', c.strata)) if col)}"
+                       " change the standard errors and the test but not the estimates; "
+                       "the standard errors and the scale-shifted test come from the design-based covariance of the "
+                       "thresholds and correlations"
+                       if weighted_least_squares and (c.cluster is not None or c.strata is not None) else
+                       "The least-squares weights come from the design-based covariance of the thresholds and "
                        "correlations; the standard errors and the scale-shifted test come from it too" if
                        weighted_least_squares else
                        "The standard errors and the scale-shifted test come from the design-based covariance of the "

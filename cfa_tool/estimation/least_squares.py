@@ -47,9 +47,12 @@ class GroupStatistics:
     n_obs: int
 
 
-def group_statistics(values: np.ndarray, gamma: np.ndarray, n_obs: int, diagonal: bool) -> GroupStatistics:
-    """Statistics with diagonal weights 1 / diag(Gamma) (``diagonal``) or unit weights."""
-    weights = 1.0 / np.diag(gamma) if diagonal else np.ones(len(values))
+def group_statistics(values: np.ndarray, gamma: np.ndarray, n_obs: int, diagonal: bool,
+                     variances: np.ndarray | None = None) -> GroupStatistics:
+    """Statistics with diagonal weights 1 / diag(Gamma) (``diagonal``) or unit weights; ``variances``, when given,
+    replace diag(Gamma) in the weights (under clusters or strata: the statistics' variances with the rows taken as
+    independent, so that the design changes the standard errors and tests but not the estimates)."""
+    weights = 1.0 / (np.diag(gamma) if variances is None else variances) if diagonal else np.ones(len(values))
     return GroupStatistics(values, weights, gamma, n_obs)
 
 

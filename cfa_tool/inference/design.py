@@ -135,12 +135,21 @@ def ordinal_design_covariance(moments):
     """``moments`` (OrdinalMoments estimated under a sampling design, carrying their rows' influence
     functions) with the asymptotic covariance of the thresholds and correlations under that design:
     Gamma = the design-based meat of the rows' influence functions (Muthen & Satorra 1995; Asparouhov
-    2005; the linearization estimator over clusters within strata, Binder 1983).  Moments without a
+    2005; the linearization estimator over clusters within strata, Binder 1983).  Under clusters or strata
+    the moments also carry the statistics' variances with the rows taken as independent (sampling weights
+    applied), from which the diagonal least-squares weights come: clusters and strata then change the
+    standard errors and tests, not the estimates, as they do in a maximum-likelihood fit, and a design of a
+    few clusters, whose covariance is nearly singular, cannot make the weights erratic.  Moments without a
     design are returned as they are."""
     from dataclasses import replace
 
     if moments.influence is None:
         return moments
-    joint = design_meat(moments.influence, moments.design)
+    design = moments.design
+    joint = design_meat(moments.influence, design)
     k = len(joint) - len(moments.pairs[0])
-    return replace(moments, joint_gamma=joint, gamma=joint[k:, k:], influence=None)
+    apart = None
+    if design.clusters is not None or design.strata is not None:
+        z, f, total = _unit_sums(moments.influence, replace(design, clusters=None, strata=None))
+        apart = np.einsum("ij,ij->j", z * f[:, None], z) / total
+    return replace(moments, joint_gamma=joint, gamma=joint[k:, k:], influence=None, weight_variances=apart)

@@ -181,14 +181,32 @@ def unit_variance_matrices(mats):
     return dc_replace(mats, T=T)
 
 
-def correlations_in_order(moments, observed: tuple[str, ...]) -> tuple[np.ndarray, np.ndarray]:
-    """(R, Gamma): the correlation matrix of ``moments`` with its items in the order ``observed``, and the
-    asymptotic covariance of its correlations below the diagonal in np.tril_indices order."""
+def _pairs_in_order(moments, observed: tuple[str, ...]) -> tuple[list[int], list[int]]:
+    """(the items' positions in ``moments`` in the order ``observed``, the positions of their correlations below
+    the diagonal, in np.tril_indices order of ``observed``, among the correlations of ``moments``)."""
     order = [moments.names.index(n) for n in observed]
     full_pairs = np.tril_indices(len(moments.names), -1)
     index_of = {(int(a), int(b)): k for k, (a, b) in enumerate(zip(*full_pairs))}
     take = [index_of[tuple(sorted((order[i], order[j]), reverse=True))] for i, j in zip(*np.tril_indices(len(order), -1))]
+    return order, take
+
+
+def correlations_in_order(moments, observed: tuple[str, ...]) -> tuple[np.ndarray, np.ndarray]:
+    """(R, Gamma): the correlation matrix of ``moments`` with its items in the order ``observed``, and the
+    asymptotic covariance of its correlations below the diagonal in np.tril_indices order."""
+    order, take = _pairs_in_order(moments, observed)
     return moments.correlations[np.ix_(order, order)], moments.gamma[np.ix_(take, take)]
+
+
+def _weight_variances(moments, observed: tuple[str, ...] | None = None) -> np.ndarray | None:
+    """The variances the diagonal weights come from when they are not diag(Gamma) (under clusters or strata;
+    inference.design.ordinal_design_covariance): of the correlations in the order ``observed``, or of all the
+    statistics (thresholds, then correlations) when ``observed`` is None."""
+    apart = moments.weight_variances
+    if apart is None or observed is None:
+        return apart
+    _, take = _pairs_in_order(moments, observed)
+    return apart[len(apart) - len(moments.pairs[0]):][take]
 
 
 def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weighting.DIAGONAL) -> FitResult:
@@ -204,7 +222,8 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
     order = [moments.names.index(n) for n in table.observed]
     R, gamma = correlations_in_order(moments, table.observed)
     pairs = np.tril_indices(p, -1)
-    statistics = [group_statistics(R[pairs], gamma, moments.n_obs, method is Weighting.DIAGONAL)]
+    statistics = [group_statistics(R[pairs], gamma, moments.n_obs, method is Weighting.DIAGONAL,
+                                   _weight_variances(moments, table.observed))]
     weights = statistics[0].weights
     model = StructuredModel(table)
     ls = OrdinalLeastSquares(model, statistics, thresholds=False)
@@ -355,7 +374,7 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting
         raise OptionError(f"the model has {table.n_free} free parameters but the groups' {what} and correlations "
                           f"give only {n_stats} statistics, so it cannot be identified")
     model = StructuredModel(table)
-    statistics = [group_statistics(values, gamma, m.n_obs, method is Weighting.DIAGONAL)
+    statistics = [group_statistics(values, gamma, m.n_obs, method is Weighting.DIAGONAL, _weight_variances(m))
                   for (values, gamma), m in zip(data, moments)]
     objective = _objective(model, statistics, continuous)
     weights = objective.weights

@@ -459,8 +459,10 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
     if converged:  # a method factor that carries next to nothing: a caution
         from cfa_tool.assessment.method_factors import weak_factor_problems
 
+        from cfa_tool.assessment.reliability import keying_problems
+
         problems = tuple(problems) + tuple(weak_factor_problems(estimates, latent, observed, groups, spec.method_factors,
-                                                                spec.exploratory_factors))
+                                                                spec.exploratory_factors)) + tuple(keying_problems(groups))
     return FitResult(
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
         estimator=method.sentence(len(groups)), method=method, converged=converged, iterations=iterations,

@@ -15,7 +15,7 @@ import math
 
 from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
-from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
@@ -55,6 +55,16 @@ def design_sentence(result) -> str:
     kind = _correlation_kinds(result)[0] if method.ordinal else "polychoric"  # the estimator's phrase has the aside
     return result.design.sentence(method.full_information, method.ordinal, f"{kind} correlations",
                                   method.weighting is Weighting.DIAGONAL)
+
+
+def _design_sentences(results) -> list[str]:
+    """The design of fits of the same rows (the first's words) and its cautions (too few clusters, a small effective
+    sample), those of the fit with the most free parameters, which they weigh on most: beside the design they doubt."""
+    first = results[0]
+    if getattr(first, "design", None) is None:
+        return []
+    most = max(results, key=lambda r: len(r.parameter_labels))
+    return [design_sentence(first)] + [p.explanation for p in most.problems if p.kind in DESIGN_CAUTIONS]
 
 
 def _estimator_phrase(result) -> str:
@@ -354,12 +364,18 @@ def _method_items(result, factor: str) -> list[str]:
 
 
 def _weak_factor_sentence(result, subject: str) -> str:
-    """A sentence on the method factors of ``result`` that carry next to nothing ('' when there are none)."""
+    """Sentences on the method factors of ``result`` that carry next to nothing and on factors that point against
+    their items ('' when there are none)."""
     weak = [p.phrase() for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
-    if not weak:
-        return ""
-    return (f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): its items share little "
-            f"beyond the other factors they load on.")
+    turned = [p.phrase() for p in result.problems if p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS]
+    parts = []
+    if weak:
+        parts.append(f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): its items share "
+                     f"little beyond the other factors they load on.")
+    if turned:
+        parts.append(f"{subject} has {_list(turned)}: its correlations, mean differences and scores read the wrong "
+                     f"way.")
+    return " ".join(parts)
 
 
 def methods_paragraph(result) -> str:
@@ -387,9 +403,7 @@ def methods_paragraph(result) -> str:
     matrix = _matrix_sentence(result)
     if matrix:  # right after the sentence naming the estimation and N
         parts.insert(1, matrix)
-    design = getattr(result, "design", None)
-    if design is not None:
-        parts.append(design_sentence(result))
+    parts += _design_sentences([result])
     inadmissible = not result.admissible
     if inadmissible:
         serious = [p for p in result.problems if p.kind.inadmissible]
@@ -530,9 +544,7 @@ def comparison_paragraph(comparison) -> str:
     if matrix:  # summary statistics: said once, right after what was compared
         parts.append(matrix)
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
-    design = getattr(first, "design", None)
-    if design is not None:
-        parts.append(design_sentence(first))
+    parts += _design_sentences(list(results))
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
     for name, r in zip(names, results):  # problems first: before the figures a reader might take as support
         if r.converged and not r.admissible:
@@ -685,9 +697,7 @@ def invariance_paragraph(result, levels) -> str:
         departures = _departures(d)
         if departures:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))
-    design = getattr(first, "design", None)
-    if design is not None:
-        parts.append(design_sentence(first))
+    parts += _design_sentences([s.result for s in steps])
     methods = sorted({s.versus_previous.method for s in steps[1:] if s.versus_previous is not None
                       and not s.versus_previous.not_computed}, key=_PREFERRED.index)
     rule = result.rule.description.replace("alpha", unit(result.alpha, 2)).replace(">=", "\u2265")

@@ -114,11 +114,16 @@ def precision_table(result, k: int) -> ReportTable | None:
     scoring.quality): the standard error, a 95% band and the smallest difference between two people that exceeds
     chance, in the factor's units and in its standard deviations."""
     q = result.quality[k]
-    if not hasattr(q, "methods") or not q.factor_sd:
+    ordinal = not hasattr(q, "methods")
+    if ordinal:
+        method, found = ScoreMethod.EXPECTED_A_POSTERIORI, q.precision
+    elif not q.factor_sd:
         return None
-    method = result.methods[0]
+    else:
+        method = result.methods[0]
+        found = q.precision(method)
     rows, values = [], []
-    for p in q.precision(method):
+    for p in found:
         rows.append([p.factor, num(p.standard_error, 2), f"±{num(p.band, 2)}", f"±{num(p.band_in_sd, 2)}",
                      num(p.smallest_difference, 2), num(p.smallest_difference_in_sd, 2)])
         values.append([p.factor, p.standard_error, p.band, p.band_in_sd, p.smallest_difference,
@@ -127,8 +132,19 @@ def precision_table(result, k: int) -> ReportTable | None:
         return None
     cols = [("Factor", "l"), ("SE", "r"), ("95% band", "r"), ("Band, SDs", "r"), ("Real difference", "r"),
             ("Difference, SDs", "r")]
-    note = (f"For {METHOD_LABELS[method]} scores with every item answered (each row's own standard error is "
-            f"the _se column of the file). SE: the typical distance of a score from the person's factor value; 95% band: "
+    if ordinal:
+        levels = "; ".join(f"{f} {num(low, 2)} in the lowest third of the scores and {num(high, 2)} in the highest"
+                           for f, low, high in q.precision_by_level)
+        first = (f"For {METHOD_LABELS[method]} scores of the rows that answered every item of the factor: SE is the "
+                 f"median of their posterior SDs (each row's own is the _posterior_sd column of the file), which "
+                 f"depends on the answers: {levels}. ")
+    else:
+        first = (f"For {METHOD_LABELS[method]} scores with every item answered (each row's own standard error is "
+                 f"the _se column of the file). ")
+    sds = ", ".join(f"{p.factor} {num(p.factor_sd, 2)}" for p in found)
+    first += (f"Scores, SEs and bands are in each factor's units as the model scales it (the factor's standard "
+              f"deviation: {sds}). ")
+    note = (first + f"SE: the typical distance of a score from the person's factor value; 95% band: "
             f"±1.96 SE about a score (normal approximation); real difference: the smallest difference between two "
             f"people's scores that exceeds chance at the 5% level, 1.96 × √2 × SE (Gulliksen 1950; recalled from "
             f"memory, common practice). SDs: divided by the factor's standard deviation." + _one_item_sentence(result.fit))
@@ -145,7 +161,8 @@ def precision_cautions(result) -> list[str]:
             found = [(p.factor, p.reliability, p.band_in_sd) for p in q.precision(result.methods[0])]
         else:
             words = f"{METHOD_LABELS[ScoreMethod.EXPECTED_A_POSTERIORI]} scores"
-            found = [(f, rel, None) for f, rel in zip(q.factors, q.reliability)]
+            bands = {p.factor: p.band_in_sd for p in q.precision}
+            found = [(f, rel, bands.get(f)) for f, rel in zip(q.factors, q.reliability)]
         low = [f"{factor} {unit(rel, 2)}" + (f" (95% band about ±{num(band, 2)} SD of the factor)" if band is not None
                                              else "") for factor, rel, band in found if rel < INDIVIDUAL_DECISIONS]
         if low:
@@ -188,23 +205,27 @@ def sum_table(result, k: int) -> ReportTable | None:
         return None
     rho = dict(zip(q.factors, q.determinacy))
     if not hasattr(q, "methods"):  # ordinal items: the sum of the answers' codes (Green & Yang 2009)
-        rel = dict(zip(q.factors, q.reliability))
-        rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(rel[s.factor])]
-                for s in q.sums]
+        rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(s.validity),
+                 unit(rho[s.factor])] for s in q.sums]
         return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
-                      [("Factor", "l"), ("Items", "r"), ("Reversed for the sum", "l"), ("Sum omega", "r"),
-                       ("Score reliability", "r")], rows,
-                      "The unit-weighted sum of the answers' codes of each factor's items (reverse-keyed items "
-                      "reversed); sum omega: its reliability from the fitted thresholds, loadings and factor variance "
-                      "(Green & Yang 2009), beside the reliability of the posterior-mean scores in these data (as in "
-                      "the quality table): what the simpler score loses.")
+                      [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"),
+                       ("Sum's r", "r"), ("Score's r", "r")], rows,
+                      "The unit-weighted sum of the answers' codes of each factor's items (reversed: the "
+                      "reverse-keyed items, reversed in the sum). Sum omega: its reliability from the fitted thresholds, loadings and factor variance "
+                      "(Green & Yang 2009), the agreement of the sum with its own true score, which with answer "
+                      "categories is a curved function of the factor, so it is not comparable with a score's "
+                      "agreement with the factor. Sum's r: the sum's correlation with the factor under the fitted "
+                      "model; score's r: the posterior-mean score's in these data (the square root of its reliability "
+                      "in the quality table); the two show what the simpler score loses.")
     rows = [[s.factor, str(len(s.items)), ", ".join(s.reversed_items), unit(s.omega), unit(s.validity), unit(rho[s.factor])]
             for s in q.sums]
     return _table(f"score_sums_{k}", "Keyed sum scores beside the factor scores" + _where(q),
-                  [("Factor", "l"), ("Items", "r"), ("Reversed for the sum", "l"), ("Omega of the sum", "r"),
-                   ("Sum with factor r", "r"), ("Regression score with factor r", "r")], rows,
-                  "The unit-weighted sum of each factor's items (reverse-keyed items reversed); omega of that sum "
-                  "(McDonald 1999). The last two columns show what the simpler score loses against the factor score.")
+                  [("Factor", "l"), ("Items", "r"), ("Reversed", "l"), ("Sum omega", "r"), ("Sum's r", "r"),
+                   ("Score's r", "r")], rows,
+                  "The unit-weighted sum of each factor's items (reversed: the reverse-keyed items, reversed in the "
+                  "sum); sum omega: its reliability (McDonald 1999); sum's r and score's r: the correlations of the "
+                  "sum and of the regression score with the factor under the fitted model, which show what the "
+                  "simpler score loses against the factor score.")
 
 
 def _unscored_counts(factors, counts) -> str:

@@ -537,7 +537,21 @@ def missing_table(result) -> ReportTable | None:
 def modification_table(result, limit: int = 10) -> ReportTable | None:
     rows = result.reported_modification_indices()
     if not rows:
-        return None
+        computed = result.modification_indices
+        if not result.converged or computed is None or not len(computed):
+            return None
+        # computed, none at the threshold: said, so that the section does not silently vanish
+        largest = max(computed, key=lambda m: m.index)
+        where = f" in {largest.group}" if largest.group is not None else ""
+        name = f"{largest.kind.replace('_', ' ')} {', '.join(largest.variables)}{where}"
+        return _table("modification", f"Largest modification indices (at least {result.mi_threshold:g}; none)",
+                      [("Parameter that could be freed", "l"), ("Index", "r")],
+                      [[f"none reaches {result.mi_threshold:g}; the largest: {name}", num(largest.index, 2)]],
+                      f"No parameter that could be freed has a modification index of at least "
+                      f"{result.mi_threshold:g}: freeing any one of them alone would not improve the fit by that "
+                      f"much.", values=(["Kind", "Variables", "Group", "Index"],
+                                        [[largest.kind, ", ".join(largest.variables), largest.group or "",
+                                          largest.index]]))
     shown = rows[:limit] if result.mi_top is None else rows
     title = f"Largest modification indices (at least {result.mi_threshold:g}; {len(shown)} of {len(rows)} shown)"
     body = []

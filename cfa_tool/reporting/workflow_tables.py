@@ -7,7 +7,7 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
@@ -50,6 +50,20 @@ def _caution_lines(named_results) -> list[str]:
             if p.kind in kinds and line not in lines:
                 lines.append(line)
     return lines
+
+
+def _design_caution_lines(named_results) -> list[str]:
+    """The sampling design's cautions (too few clusters, a small effective sample) of several fits of the same rows,
+    once: those of the fit with the most free parameters, the one they weigh on most, named by it when the fits'
+    cautions differ (e.g. 'no more than the 78 free parameters' of one model only)."""
+    found = [(name, len(r.parameter_labels), [p for p in r.problems if p.kind in DESIGN_CAUTIONS])
+             for name, r in named_results if getattr(r, "problems", ())]
+    found = [f for f in found if f[2]]
+    if not found:
+        return []
+    name, _, problems = max(found, key=lambda f: f[1])
+    same = all([p.line() for p in f[2]] == [p.line() for p in problems] for f in found)
+    return [("" if same else f"{name}: ") + p.line() for p in problems]
 
 
 def _notice(problems: list[str], cautions: list[str] = ()) -> ProblemNotice | None:
@@ -174,7 +188,7 @@ def comparison_report(comparison) -> Report:
                  f"is not admissible: that is no reason to prefer it." for name, indices in lowest.items()]
     total = comparison.n_obs + comparison.rows_dropped
     cautions = [p.line() for p in comparison.problems]  # the data's, first
-    cautions += _caution_lines(named)
+    cautions += _design_caution_lines(named) + _caution_lines(named)
     full_information = comparison.missing is MissingData.FULL_INFORMATION
     if comparison.rows_dropped > 0.05 * total and not (full_information or comparison.missing is MissingData.PAIRWISE):
         cautions.append(f"{comparison.rows_dropped} of {total} rows ({100 * comparison.rows_dropped / total:.0f}%) miss an "
@@ -464,7 +478,9 @@ def invariance_report(result) -> Report:
         notes.append(result.latent_note)
     inadmissible = any(s.result.converged and not s.result.admissible for s in result.steps)
     first = result.steps[0].result
-    warnings = tuple(result.warnings) + tuple(_caution_lines([(f"the {result.steps[0].level} model", first)]))
+    warnings = (tuple(result.warnings)
+                + tuple(_design_caution_lines([(f"the {s.level} model", s.result) for s in result.steps]))
+                + tuple(_caution_lines([(f"the {result.steps[0].level} model", first)])))
     notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else T.CAUTION, warnings,
                                                      inadmissible)
     lines = (f"Reference group (factor means fixed at zero): {result.groups[0]}",

@@ -37,7 +37,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.assessment.ordinal_reliability import observed_sum_omega
+from cfa_tool.assessment.ordinal_reliability import observed_sum_factor_correlation, observed_sum_omega
 from cfa_tool.assessment.reliability import item_keys
 from cfa_tool.numerics.plain import clean
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
@@ -219,7 +219,7 @@ def sum_quality(model: ScoringModel, declared: Collection[str] | None = None) ->
 def ordinal_sum_quality(model: OrdinalScoringModel, declared: Collection[str] | None = None) -> tuple[SumScore, ...]:
     """Each factor's keyed sum of ordinal answers with its reliability (Green & Yang 2009); sums that would take in
     a continuous item beside the ordinal ones are left out (their codes are not answers to a threshold model).
-    Validity (the sum's correlation with its factor) is not computed for them (NaN)."""
+    Validity: the sum's correlation with its factor under the model (assessment.ordinal_reliability)."""
     base = model.base
     sigma = checked_covariance(base)
     keys = sum_keys(base, declared)
@@ -231,10 +231,13 @@ def ordinal_sum_quality(model: OrdinalScoringModel, declared: Collection[str] | 
         if not len(idx) or any(not len(model.thresholds[i]) for i in idx):
             continue
         g = G[idx, f]
-        omega = observed_sum_omega([model.thresholds[i] for i in idx], [np.diff(model.categories[i]) for i in idx],
-                                   mean[idx], sigma[np.ix_(idx, idx)], np.outer(g, g) * phi[f, f], keys[idx, f])
+        taus, steps = [model.thresholds[i] for i in idx], [np.diff(model.categories[i]) for i in idx]
+        part = sigma[np.ix_(idx, idx)]
+        omega = observed_sum_omega(taus, steps, mean[idx], part, np.outer(g, g) * phi[f, f], keys[idx, f])
+        validity = observed_sum_factor_correlation(taus, steps, mean[idx], part, (G @ phi)[idx, f], phi[f, f],
+                                                   keys[idx, f])
         out.append(SumScore(name, tuple(base.items[i] for i in idx),
-                            tuple(base.items[i] for i in idx if keys[i, f] < 0), omega, float("nan")))
+                            tuple(base.items[i] for i in idx if keys[i, f] < 0), omega, validity))
     return tuple(out)
 
 

@@ -24,7 +24,7 @@ from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
-from cfa_tool.scoring.quality import ScoreQuality, ordinal_sum_quality
+from cfa_tool.scoring.quality import Z95, Precision, ScoreQuality, ordinal_sum_quality
 
 
 class RowLeftOut(Enum):
@@ -131,6 +131,10 @@ class OrdinalQuality:
     factor_correlations: np.ndarray | None = None  # (m, m), of the fitted model
     score_correlations: np.ndarray | None = None  # (m, m), of the posterior means of the rows scored on every factor
     sums: tuple = ()  # SumScore per factor: the keyed sum of the answers' codes (Green & Yang 2009 reliability)
+    # how precise one person's score is, from the posterior SDs of the rows that answered every item of the factor
+    # (their median as the standard error), and that SE's median in the lowest and the highest third of the scores
+    precision: tuple = ()  # scoring.quality.Precision per factor with such rows
+    precision_by_level: tuple = ()  # (factor, SE in the lowest third of scores, SE in the highest third)
 
     @property
     def determinacy(self) -> tuple[float, ...]:
@@ -147,7 +151,11 @@ class OrdinalQuality:
                       "factor_correlations": None if self.factor_correlations is None else
                       self.factor_correlations.tolist(),
                       "score_correlations": None if self.score_correlations is None else self.score_correlations.tolist(),
-                      "sums": [{k: v for k, v in s.to_dict().items() if k != "validity"} for s in self.sums]})
+                      "sums": [s.to_dict() for s in self.sums],
+                      "precision": [p.to_dict() for p in self.precision],
+                      "precision_by_score_level": [{"factor": f, "standard_error_lowest_third": low,
+                                                    "standard_error_highest_third": high}
+                                                   for f, low, high in self.precision_by_level]})
 
 
 @dataclass(frozen=True, eq=False)
@@ -323,7 +331,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     if id_name is not None and id_name in list(table.columns)[1:]:
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
-                               spec) if ordinal_items else _linear_quality(models, spec)
+                               spec, answered) if ordinal_items else _linear_quality(models, spec)
     extra = duplicate_note(ids, "id column" if id_column is not None else "row names")
     if ids is not None and id_column is None:
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
@@ -472,7 +480,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes += label_notes(frame, group)
     if ordinal:
         quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, frame.index,
-                                   group_of_row, group, spec)
+                                   group_of_row, group, spec, answered)
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source} (loadings, thresholds and factor covariances); the quality figures "
                         f"(marginal reliability) are those of the scores of {source}.")
@@ -804,7 +812,10 @@ def _declared(spec):
     return frozenset(spec.reverse_keyed) if spec.reversed else None
 
 
-def _ordinal_quality(models, labels, values, errors, position, kept, group_of_row, group, spec) -> list[OrdinalQuality]:
+def _ordinal_quality(models, labels, values, errors, position, kept, group_of_row, group, spec,
+                     answered: np.ndarray) -> list[OrdinalQuality]:
+    """Each group's :class:`OrdinalQuality`; ``answered``: how many of each factor's items each row answered
+    (:func:`_items_answered`), at the same places as ``values`` and ``errors``."""
     out = []
     for model_g, label in zip(models, labels):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(kept))
@@ -820,9 +831,30 @@ def _ordinal_quality(models, labels, values, errors, position, kept, group_of_ro
         scores = np.corrcoef(v[every].T).reshape(v.shape[1], v.shape[1]) if every.sum() > 2 else None
         phi = model_g.base.factor_covariance
         sd = np.sqrt(np.diag(phi))
+        precision, by_level = _ordinal_precision(model_g.base, v, e, answered[at], reliability, sd)
         out.append(OrdinalQuality(label, model_g.base.factors, tuple(reliability), phi / np.outer(sd, sd), scores,
-                                  ordinal_sum_quality(model_g, _declared(spec))))
+                                  ordinal_sum_quality(model_g, _declared(spec)), precision, by_level))
     return out
+
+
+def _ordinal_precision(base, v: np.ndarray, e: np.ndarray, answered: np.ndarray, reliability, factor_sd):
+    """(Precision per factor, (factor, SE lowest third, SE highest third) per factor): a posterior-mean score's
+    standard error is the row's own posterior SD, which depends on its answers (largest where the items have few
+    thresholds, e.g. at a floor); among the rows that answered every item of the factor, the median posterior SD
+    is the typical one, given with its medians in the lowest and the highest third of the scores."""
+    full = answered == base.reach.sum(axis=0)[None, :]
+    precision, by_level = [], []
+    for f, name in enumerate(base.factors):
+        rows = full[:, f] & ~np.isnan(v[:, f]) & ~np.isnan(e[:, f])
+        if rows.sum() < 3 or not np.isfinite(reliability[f]):
+            continue
+        s, sd = v[rows, f], e[rows, f]
+        se = float(np.median(sd))
+        low, high = np.quantile(s, [1 / 3, 2 / 3])
+        precision.append(Precision(name, ScoreMethod.EXPECTED_A_POSTERIORI, float(factor_sd[f]), float(reliability[f]),
+                                   se, Z95 * se, Z95 * np.sqrt(2.0) * se))
+        by_level.append((name, float(np.median(sd[s <= low])), float(np.median(sd[s >= high]))))
+    return tuple(precision), tuple(by_level)
 
 
 def _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal) -> list[str]:

@@ -199,6 +199,27 @@ def test_the_report_states_the_design_and_warns_of_few_clusters(survey):
     assert "weighted thresholds and polychoric correlations" in text and "10 clusters defined by unit" in text
 
 
+@pytest.mark.parametrize("group", [None, "half"])
+def test_clusters_and_strata_change_standard_errors_not_estimates(survey, group):
+    # The diagonal least-squares weights come from the statistics' variances with the rows taken as independent
+    # (weights applied), so clusters and strata leave the estimates of the weighted fit as they are, as they do in
+    # a maximum-likelihood fit; only the standard errors and the test follow the design.  With two clusters the
+    # design-based covariance is nearly singular, and weights from it moved the loadings (new-user trial 7, U2).
+    data = survey.assign(half=np.where(survey["stratum"] < 2, "low", "high"))  # clusters nest in the halves
+    weighted = cfa_tool.fit(ONE_FACTOR, data, ordinal="all", weights="w", group=group)
+    for design in (dict(cluster="unit"), dict(cluster="unit", strata="stratum"), dict(cluster="stratum")):
+        clustered = cfa_tool.fit(ONE_FACTOR, data, ordinal="all", weights="w", group=group, **design)
+        _assert_same(weighted, clustered, "estimate", 1e-8)
+        assert clustered.fit.chi_square == pytest.approx(weighted.fit.chi_square, rel=1e-8)
+        assert not np.allclose([r.se for r in clustered.estimates if r.se is not None],
+                               [r.se for r in weighted.estimates if r.se is not None])
+    few = cfa_tool.fit(ONE_FACTOR, data, ordinal="all", group=group, cluster="stratum")  # four clusters
+    text = methods_paragraph(few)
+    caution = next(p for p in few.problems if p.kind is ProblemKind.FEW_CLUSTERS)
+    assert text.index(caution.explanation) < text.index("chi-square test")  # beside the design, before the fit
+    assert caution.explanation.startswith("Only 4 clusters in 'stratum'")
+
+
 def test_the_methods_paragraph_says_what_the_design_based_ordinal_fit_did(survey):
     """What inference/design.design_meat and data/sample_design.row_design do, in the paragraph's words: the
     least-squares weights and the standard errors from the design-based covariance of the influence functions,
@@ -209,7 +230,9 @@ def test_the_methods_paragraph_says_what_the_design_based_ordinal_fit_did(survey
                                           strata="stratum"))
     assert "least squares on tetrachoric correlations of the ordinal items" in text
     assert "weighted thresholds and tetrachoric correlations" in text and "polychoric" not in text
-    assert "The least-squares weights come from the design-based covariance of the thresholds and correlations" in text
+    assert ("The least-squares weights come from the variances of the thresholds and correlations with the rows "
+            "taken as independent (weights applied), so the clusters and strata change the standard errors and the "
+            "test but not the estimates") in text
     assert "influence functions" in text and "score contributions" not in text
     assert "clusters' weighted sums centred within each stratum" in text and "C_h/(C_h - 1)" in text
     mixed = survey.assign(a=(survey["a"] > 2).astype(float) + 1)

@@ -302,6 +302,35 @@ def test_few_clusters_bring_a_caution_first(hs_data):
     assert "fewer than about 30-50 clusters" in [p for p in forty.problems if p.kind is ProblemKind.FEW_CLUSTERS][0].explanation
 
 
+def test_few_clusters_bring_their_caution_to_compare_and_invariance_first(hs_data):
+    # hostile trial 7, H3: fit, check and scores put the few-clusters caution first, compare and invariance said
+    # nothing although their difference tests rest on the same cluster-robust covariance.  Once, from the model
+    # with the most free parameters (named when the models' cautions differ), first in the report and beside the
+    # design in the methods paragraph.
+    from cfa_tool.reporting.paragraph import comparison_paragraph, invariance_paragraph
+    from cfa_tool.reporting.terminal import report_text
+    from cfa_tool.reporting.workflow_tables import comparison_report, invariance_report
+    from cfa_tool.workflows.compare import compare
+    from cfa_tool.workflows.invariance import invariance
+
+    data = hs_data.assign(unit=np.arange(len(hs_data)) % 12)
+    one = "factor g: x1, x2, x3, x4, x5, x6, x7, x8, x9\n"
+    comparison = compare([one, THREE_FACTORS], data, cluster="unit")
+    report = comparison_report(comparison)
+    text = report_text(report)
+    assert text.index("no more than the 21 free parameters") < text.index("Fit of each model")
+    assert sum("Only 12 clusters" in line for line in report.notice.lines) == 1
+    paragraph = comparison_paragraph(comparison)
+    assert "Only 12 clusters in 'unit', no more than the 21 free parameters" in paragraph
+    assert paragraph.index("12 clusters defined by unit") < paragraph.index("Only 12 clusters")  # after the design
+    ladder = invariance(THREE_FACTORS, data, "school", cluster="unit")
+    text = report_text(invariance_report(ladder))
+    assert "The configural model: Only 12 clusters in 'unit', no more than the 60 free parameters" in text
+    assert text.index("Only 12 clusters") < text.index("Measurement invariance")
+    assert "Only 12 clusters in 'unit', no more than the 60 free parameters" in invariance_paragraph(
+        ladder, [s.level for s in ladder.steps])
+
+
 def test_scheduler_is_the_option_of_the_dask_address(tmp_path, capsys):
     # --cluster now names a column of the data; the Dask scheduler of the resampling commands is --scheduler
     from cfa_tool.cli import build_parser

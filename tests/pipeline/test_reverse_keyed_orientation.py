@@ -11,6 +11,7 @@ import numpy as np
 import pytest
 
 import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.reporting.paragraph import methods_paragraph
 from cfa_tool.reporting.tables import estimate_tables
 from tests.conftest import simulate_cfa
@@ -98,19 +99,23 @@ def test_other_scalings_point_the_way_of_the_keys(answers, scaling):
 def test_without_a_reversed_statement_a_marker_against_its_items_is_named(answers):
     result = cfa_tool.fit(STRUCTURE, answers)
     assert result.description.scales[0].marker == "a1"  # as before: the first item
-    turned = [w for w in result.warnings if "points the way of" in w]
+    turned = [p.line() for p in result.problems if p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS]
     # f only: its marker a1 loads against a2..a4; g's marker b1 is worded with the trait, and h's items all
-    # point one way, so without the statement nothing in the data says that h is turned
-    assert len(turned) == 1
-    assert "factor 'f' points the way of a1, against most of its items (a2, a3, a4 load negatively)" in turned[0]
+    # point one way, so without the statement nothing in the data says that h is turned.  A caution of the solution,
+    # first in every view and in the methods paragraph (hostile trial 7, H4: it was a note only)
+    assert len(turned) == 1 and result.admissible
+    assert "Factor 'f' points the way of a1, against most of its items (a2, a3, a4 load negatively)" in turned[0]
     assert "'reversed a1 on LOWEST to HIGHEST'" in turned[0]
+    assert not [w for w in result.warnings if "points the way of" in w]  # said once
+    assert "factor f pointing against its items" in methods_paragraph(result)
 
 
 def test_a_user_fixed_reversed_marker_is_respected_with_a_caution(answers):
     result = cfa_tool.fit(STRUCTURE + KEYS + "fix loading(f, a1) = 1\n", answers)
     loadings = {r.variables: r.estimate for r in result.estimates if r.kind == "loading"}
     assert loadings[("f", "a1")] == 1.0 and loadings[("f", "a2")] < 0  # the model's fix holds
-    assert [w for w in result.warnings if w.startswith("factor 'f' points against its items")]
+    assert [p for p in result.problems if p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS
+            and p.explanation.startswith("Factor 'f' points against its items")]
 
 
 def test_groups_take_the_same_marker_in_every_group(answers):

@@ -404,3 +404,21 @@ def test_methods_paragraph_of_two_higher_order_factors():
     assert ",," not in text
     assert "The standardized loadings of the first-order factors on the higher-order factors ranged from" in text
     assert "The correlation of the higher-order factors (e and f) was ." in text
+
+
+def test_modification_indices_none_at_the_threshold_are_said_not_left_out(hs_data):
+    """New-user trial 7, U11: with no index at the threshold the whole section vanished from every view.  Now a
+    one-row table says none reaches it and names the largest (the maximum over every computed index)."""
+    import cfa_tool
+    from cfa_tool.reporting import tables as T
+
+    text = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+    result = cfa_tool.fit(text, hs_data, mi_threshold=1000)
+    assert not len(result.reported_modification_indices())
+    table = T.modification_table(result)
+    largest = max(result.modification_indices, key=lambda m: m.index)
+    assert table is not None and "none" in table.title
+    assert table.rows[0][0].startswith("none reaches 1000; the largest: ")
+    assert table.values[0][3] == largest.index and "at least 1000" in table.note
+    lean = cfa_tool.fit(text, hs_data, modification_indices=False)
+    assert T.modification_table(lean) is None  # not computed: nothing to say

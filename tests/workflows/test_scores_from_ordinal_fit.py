@@ -147,4 +147,35 @@ def test_the_ordinal_scores_report_gives_score_correlations_and_the_sum_with_its
     assert "score_correlations_0" in keys and "score_sums_0" in keys
     assert ORDINAL_NOTE in result.fit.warnings and ORDINAL_NOTE not in report.notes
     out = result.to_dict()["quality"][0]
-    assert len(out["sums"]) == 2 and "validity" not in out["sums"][0]
+    assert len(out["sums"]) == 2 and all(0 < s["validity"] < 1 for s in out["sums"])
+    sums = next(t for t in report.tables if t.key == "score_sums_0")
+    assert "Sum's r" in sums.columns and "not comparable" in sums.note
+
+
+def test_the_ordinal_scores_report_says_how_precise_one_persons_score_is():
+    """The precision table of ordinal scores (new-user trial 7, U6: README promised it, the ordinal report lacked it):
+    SE = the median posterior SD of the rows that answered every item of the factor, read back from the written
+    columns with numpy; the band and the smallest real difference are 1.96 and 1.96 sqrt(2) times it (Gulliksen
+    1950, recalled from memory); the note gives the SE in the lowest and highest third of the scores and the units."""
+    from cfa_tool.reporting.reports import report_of
+
+    data = _draw(600, 5)
+    data.loc[data.index[:40], "q2"] = np.nan  # rows with a gap are not among those the SE describes
+    result = scores("factor f1: q1, q2\nfactor f2: q3, q4\nordinal q1..q4\n", data)
+    q = result.quality[0]
+    table = result.table
+    for p in q.precision:
+        full = table[f"{p.factor}_items_answered"] == 2
+        sd = table.loc[full, f"{p.factor}_posterior_sd"].to_numpy()
+        assert p.standard_error == pytest.approx(np.median(sd), abs=1e-12)
+        assert p.band == pytest.approx(1.959963984540054 * np.median(sd), abs=1e-12)
+        assert p.smallest_difference == pytest.approx(1.959963984540054 * np.sqrt(2) * np.median(sd), abs=1e-12)
+        scores_full = table.loc[full, f"{p.factor}_posterior_mean"].to_numpy()
+        low = np.quantile(scores_full, 1 / 3)
+        level = dict((f, (a, b)) for f, a, b in q.precision_by_level)[p.factor]
+        assert level[0] == pytest.approx(np.median(sd[scores_full <= low]), abs=1e-12)
+    assert {p.factor for p in q.precision} == {"f1", "f2"}
+    precision = next(t for t in report_of(result).tables if t.key == "score_precision_0")
+    assert "lowest third of the scores" in precision.note and "factor's standard deviation" in precision.note
+    out = result.to_dict()["quality"][0]
+    assert len(out["precision"]) == 2 and len(out["precision_by_score_level"]) == 2
