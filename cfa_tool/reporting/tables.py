@@ -542,8 +542,7 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
             return None
         # computed, none at the threshold: said, so that the section does not silently vanish
         largest = max(computed, key=lambda m: m.index)
-        where = f" in {largest.group}" if largest.group is not None else ""
-        name = f"{largest.kind.replace('_', ' ')} {', '.join(largest.variables)}{where}"
+        name = parameter_words(largest.kind, tuple(largest.variables), largest.group, article=False)
         return _table("modification", f"Largest modification indices (at least {result.mi_threshold:g}; none)",
                       [("Parameter that could be freed", "l"), ("Index", "r")],
                       [[f"none reaches {result.mi_threshold:g}; the largest: {name}", num(largest.index, 2)]],
