@@ -27,7 +27,7 @@ from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
-from cfa_tool.errors import ModelError, OptionError
+from cfa_tool.errors import ModelError, OptionError, printable
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
@@ -216,7 +216,7 @@ def fitted_estimates(fitted) -> tuple[str, bool, bool, dict]:
         return "the fit result given", fitted.multigroup, bool(fitted.method.ordinal), payload
     source = "the result given"
     if isinstance(fitted, (str, Path)):
-        source = str(fitted)
+        source = f"'{printable(str(fitted))}'"
         fitted = input_json(fitted, "fit result", OptionError)
     if not isinstance(fitted, dict) or not isinstance(fitted.get("estimates"), list):
         raise OptionError(f"{source}: not a result written by 'cfa-tool fit --json' (it has no 'estimates' list)")
