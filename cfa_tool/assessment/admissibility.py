@@ -17,9 +17,11 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from cfa_tool.errors import OptionError
 from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
+from cfa_tool.model.saved_estimates import AGAIN, saved_rows
 from cfa_tool.numerics.linalg import cholesky_log_det
 
 
@@ -335,43 +337,18 @@ def _labels_of(table: ParameterTable) -> _Labels:
 _MATRIX_KINDS = ("loading", "factor_variance", "factor_covariance", "residual_variance", "residual_covariance")
 
 
-def _real(value) -> bool:
-    return isinstance(value, (int, float)) and not isinstance(value, bool) and bool(np.isfinite(value))
-
-
-def estimate_not_a_number(rows: list) -> str | None:
-    """The first estimate row of a saved result whose estimate is written as something other than a number (text such
-    as "0.8", true/false, a list), as 'loading(f1, x1) is "0.8"'; None when every estimate is a number or empty."""
-    import json
-
-    for row in rows if isinstance(rows, list) else ():
-        if not isinstance(row, dict):
-            continue
-        value = row.get("estimate")
-        if value is None or _real(value) or (isinstance(value, float) and not isinstance(value, bool)):
-            continue
-        names = row.get("variables") if isinstance(row.get("variables"), list) else []
-        label = f"{row.get('kind')}({', '.join(str(v) for v in names)})"
-        shown = json.dumps(value)
-        return f"{label} is {shown if len(shown) <= 30 else shown[:27] + '...'}"
-    return None
-
-
-def estimate_row_problems(rows: list) -> tuple[Problem, ...]:
+def estimate_row_problems(rows: list, source: str = "the saved result") -> tuple[Problem, ...]:
     """The inadmissible problems of a saved result's estimates themselves (the rows of a ``--json`` file's
-    'estimates': kind, variables, group, estimate), whatever its 'admissible' flag says: each group's
-    matrices are rebuilt from the rows and judged by :func:`matrix_problems`, the rule a fresh fit is judged
-    by (negative variances, correlations beyond +/-1, covariance matrices not positive definite).  Rows that
-    are not of a loading, variance or covariance, or whose estimate is not a number, are left to the reader."""
+    'estimates': kind, variables, group, estimate), whatever its 'admissible' flag says: the rows are read by
+    the one reader of saved estimates (:func:`~cfa_tool.model.saved_estimates.saved_rows`, an error naming a row
+    it cannot read, as an estimate that is not a number), each group's matrices are rebuilt from them and judged
+    by :func:`matrix_problems`, the rule a fresh fit is judged by (negative variances, correlations beyond +/-1,
+    covariance matrices not positive definite).  Rows that are not of a loading, variance or covariance are left
+    to the reader of the model's values."""
     groups: dict = {}
-    for row in rows if isinstance(rows, list) else ():
-        if not isinstance(row, dict) or row.get("kind") not in _MATRIX_KINDS or not _real(row.get("estimate")):
-            continue
-        names = row.get("variables")
-        if not isinstance(names, list) or len(names) not in (1, 2) or not all(isinstance(v, str) for v in names):
-            continue
-        groups.setdefault(row.get("group") if isinstance(row.get("group"), str) else None, []).append(
-            (row["kind"], names[0], names[-1], float(row["estimate"])))
+    for row in saved_rows(rows, source):
+        if row.kind in _MATRIX_KINDS and len(row.variables) in (1, 2):
+            groups.setdefault(row.group, []).append((row.kind, row.variables[0], row.variables[-1], row.estimate))
     out: list[Problem] = []
     for group, entries in groups.items():
         latent = tuple(dict.fromkeys(a for k, a, _, _ in entries if k in ("loading", "factor_variance",
@@ -399,3 +376,33 @@ def estimate_row_problems(rows: list) -> tuple[Problem, ...]:
             found = matrix_problems(mats, observed, latent, group)
         out.extend(q for q in found if q.kind.inadmissible)
     return tuple(out)
+
+
+def saved_fit_problems(payload: dict, source: str) -> tuple[Problem, ...]:
+    """The problems of a saved fit (the dict of its ``fit --json`` result): first those of its estimates themselves
+    (:func:`estimate_row_problems`, whatever the file's flag says), then those its file lists."""
+    return estimate_row_problems(payload.get("estimates"), source) + listed_problems(payload.get("problems", []), source)
+
+
+def listed_problems(listed: list, source: str) -> tuple[Problem, ...]:
+    """The problems a saved result lists (the 'problems' of a fit in its JSON) as :class:`Problem` values."""
+    try:
+        return tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
+                             q["advice"], q["group"]) for q in listed)
+    except (ValueError, KeyError, TypeError):
+        raise OptionError(f"{source}: its list of problems is incomplete or changed by hand; {AGAIN}") from None
+
+
+def refuse_inadmissible_saved_fit(payload: dict, problems: tuple[Problem, ...], source: str, purpose: str) -> None:
+    """The one refusal of a saved fit whose solution is not admissible (``problems`` from
+    :func:`saved_fit_problems`, or its file says so), by every command that uses a saved fit's values: scores from
+    it, simulation and power simulation from it as a population.  Exit 2 (:class:`OptionError`): the run estimates
+    no model, and the saved file is an input it cannot use; exit 3 stays for a model that a run cannot estimate.
+    ``purpose`` ends the message: 'no factor scores are computed with it'."""
+    first = next((p for p in problems if p.kind.inadmissible), None)
+    flagged = payload.get("admissible", True) is False or payload.get("converged", True) is False
+    if first is None and not flagged:
+        return
+    why = f" (it has {first.phrase()})" if first is not None else ""
+    raise OptionError(f"{source}: the fitted solution is not admissible{why}, so {purpose}; fit a model whose solution "
+                      f"is admissible and use that result")

@@ -74,25 +74,70 @@ def saved_report(payload: object, source: str) -> Report:
     except (KeyError, TypeError, ValueError, AttributeError):
         raise OptionError(f"{source}: the report in this result is incomplete or changed by hand; run the command "
                           f"again with --json") from None
-    return _with_estimate_problems(report, payload)
+    return _with_estimate_problems(report, payload, source)
 
 
-def _with_estimate_problems(report: Report, payload: dict) -> Report:
-    """``report`` with, first, the problems of the result's estimates themselves that its own list of problems
-    lacks (a file whose estimates were changed after the fit): the estimates are judged as a fresh fit's are."""
+_NESTED_NAMES = {"calibration": "the calibration fit", "loose": "the loose refit"}
+
+
+def _fits_in(payload: dict, where: str = "") -> list[tuple[str, dict]]:
+    """Every fit a saved result holds, with the name its report gives it: the result itself when it is a fit (or a
+    result of scores, which carries its fit's problems), and each fit nested in it (the models of a comparison, the
+    steps of an invariance ladder, the fits of a replication): a part with an 'admissible' flag and a list of
+    'problems'.  The saved report itself is not searched."""
+    found = []
+    if "admissible" in payload and isinstance(payload.get("problems"), list):
+        name = payload.get("name") if isinstance(payload.get("name"), str) else None
+        level = payload.get("level") if isinstance(payload.get("level"), str) else None
+        found.append((name or (f"the {level} model" if level else None) or _NESTED_NAMES.get(where) or "this fit",
+                      payload))
+    for key, value in payload.items():
+        if key == "report":
+            continue
+        for part in (value if isinstance(value, list) else [value]):
+            if isinstance(part, dict):
+                found += _fits_in(part, key)
+    return found
+
+
+def _with_estimate_problems(report: Report, payload: dict, source: str) -> Report:
+    """``report`` with, first, the problems of every fit the result holds that its saved report does not show (a
+    file changed after the run): a fit's estimates, when the file has them, are judged as a fresh fit's are (rows
+    that cannot be read are an error, by the one reader of saved estimates), and the problems each fit lists that
+    make it inadmissible must be in the saved report's notice (their phrase or explanation in one of its lines)."""
     from dataclasses import replace
 
-    from cfa_tool.assessment.admissibility import estimate_row_problems
+    from cfa_tool.assessment.admissibility import estimate_row_problems, listed_problems
     from cfa_tool.reporting.tables import NOT_ADMISSIBLE, ProblemNotice
+    from cfa_tool.reporting.workflow_tables import SOME_NOT_ADMISSIBLE
 
-    listed = payload.get("problems")
-    known = {(q.get("kind"), tuple(q.get("parameters", ()))) for q in listed if isinstance(q, dict)} \
-        if isinstance(listed, list) else set()
-    found = [q for q in estimate_row_problems(payload.get("estimates"))
-             if (q.kind.value, q.parameters) not in known]
-    if not found:
-        return report
-    lines = tuple(f"The estimates in this file differ from the fit its report describes (changed after the fit?), and "
-                  f"they are not admissible: {q.explanation} Fit the model again rather than edit its result." for q in found)
     old = report.notice.lines if report.notice is not None else ()
-    return replace(report, notice=ProblemNotice(NOT_ADMISSIBLE, lines + old, True))
+    lines: list[str] = []
+    if "estimates" in payload:
+        listed = payload.get("problems")
+        known = {(q.get("kind"), tuple(q.get("parameters", ()))) for q in listed if isinstance(q, dict)} \
+            if isinstance(listed, list) else set()
+        lines += [f"The estimates in this file differ from the fit its report describes (changed after the fit?), and "
+                  f"they are not admissible: {q.explanation} Fit the model again rather than edit its result."
+                  for q in estimate_row_problems(payload["estimates"], source)
+                  if (q.kind.value, q.parameters) not in known]
+    for name, fit in _fits_in(payload):
+        if fit.get("converged", True) is False:  # its views say it did not converge
+            continue
+        listed = listed_problems(fit["problems"], source)
+        shown = [q for q in listed if q.kind.inadmissible and any(q.phrase() in line or q.explanation in line
+                                                                   for line in old)]
+        unshown = [q for q in listed if q.kind.inadmissible and q not in shown]
+        lines += [f"{name[0].upper() + name[1:]} is not admissible, and the report saved with it does not say so "
+                  f"(changed after the run?): {q.explanation} Do not interpret its estimates or fit." for q in unshown]
+        if fit.get("admissible") is False and not shown and not unshown and not (report.notice and
+                                                                                 report.notice.inadmissible):
+            lines.append(f"{name[0].upper() + name[1:]} is marked not admissible in this file, and the report saved "
+                         f"with it does not say so (changed after the run?): do not interpret its estimates or fit.")
+    if not lines:
+        return report
+    if report.notice is not None and report.notice.inadmissible:
+        heading = report.notice.heading
+    else:
+        heading = NOT_ADMISSIBLE if "estimates" in payload else SOME_NOT_ADMISSIBLE
+    return replace(report, notice=ProblemNotice(heading, tuple(lines) + old, True))

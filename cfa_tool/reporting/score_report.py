@@ -67,20 +67,12 @@ def caution_lines(result) -> list[str]:
 
 def _one_item_sentence(fit) -> str:
     """Factors measured by one item, whose error variance the model must fix: their scores' determinacy,
-    reliability and precision follow from that fixed value, not from the data (Bollen 1989, ch. 7; the chapter
-    recalled from memory)."""
-    items: dict[str, list[str]] = {}
-    rows = ([(e.kind, tuple(e.variables)) for e in fit.estimates] if hasattr(fit, "estimates") else  # a saved fit:
-            [(e.get("kind"), tuple(e.get("variables", ()))) for e in fit.payload.get("estimates", ())])  # its JSON rows
-    for kind, names in rows:
-        if kind == "loading" and len(names) == 2 and names[1] in fit.observed:
-            items.setdefault(names[0], []).append(names[1])
-    one = sorted({f for f, xs in items.items() if len(set(xs)) == 1})
-    if not one:
-        return ""
-    return (f" {', '.join(one)}: measured by one item, whose error variance the model fixes, so "
-            f"{'its' if len(one) == 1 else 'their'} determinacy, reliability and precision restate that fixed value "
-            f"(Bollen 1989, ch. 7), not evidence from the data.")
+    reliability and precision follow from that fixed value, not from the data (:mod:`cfa_tool.reporting.one_item`).
+    ``fit``: the fit result, or a saved fit (its JSON rows)."""
+    from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
+
+    rows = fit.estimates if hasattr(fit, "estimates") else fit.payload.get("estimates", ())
+    return one_item_sentence(one_item_factors(rows, fit.observed), "determinacy, reliability and precision")
 
 
 def quality_table(result, k: int) -> ReportTable:

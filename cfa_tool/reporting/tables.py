@@ -11,6 +11,7 @@ from cfa_tool.assessment.reliability import Keying
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, WeightKind
 from cfa_tool.model.description import parameter_words
+from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
 from cfa_tool.reporting.numbers import index_text, missing, num, p_phrase, p_value, unit, word_list
 from cfa_tool.reporting.remedies import Remedy
 
@@ -605,12 +606,10 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
             "to the factor (for a higher-order factor: omega hierarchical); omega total: due to all factors; alpha "
             "from the " + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
             + ("composite" if ordinal else "composite reliability") + " from the standardized loadings.")
-    single = [r.factor for r in rows if r.level == "first-order" and len(r.items) == 1]
-    if single:
-        note += (f" {', '.join(single)} {'has' if len(single) == 1 else 'have'} one item: with one indicator the "
-                 f"factor's share of the item's variance follows from the error variance fixed in the model, an "
-                 f"assumption rather than evidence, so no coefficients are shown and "
-                 f"{'it takes' if len(single) == 1 else 'they take'} no part in the Fornell-Larcker comparison.")
+    single = one_item_factors(result.estimates, result.observed)
+    note += one_item_sentence(single, "reliability coefficients",
+                              f"no coefficients are shown, and {'it takes' if len(single) == 1 else 'they take'} no "
+                              f"part in the Fornell-Larcker comparison")
     methods = result.description.method_factors if result.description is not None else ()
     if methods:
         note += (f" Method factors ({', '.join(methods)}) stand for a way of answering, not a trait: they get no "

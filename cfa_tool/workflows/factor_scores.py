@@ -364,9 +364,11 @@ def models_of_fit(result: FitResult) -> tuple[list, list]:
     without_exploratory_blocks(spec, "scores", "its factors' scores would be those of the unrotated block")
     if result.method.ordinal:
         labels = tuple(g.label for g in result.groups) if result.multigroup else None
-        return ordinal_models_of_estimates(spec, [row.to_dict() for row in result.estimates], result.data, labels,
-                                           OptionError("the result's estimates do not match its model text; refit the "
-                                                       "model"))
+        from cfa_tool.model.saved_estimates import saved_rows
+
+        source = "the fit result"
+        return ordinal_models_of_estimates(spec, saved_rows([row.to_dict() for row in result.estimates], source),
+                                           result.data, labels, source)
     labels = tuple(g.label for g in result.groups) if result.multigroup else None
     mean_structure = result.multigroup or any(r.kind == "intercept" for r in result.estimates)
     table, model = model_structure(spec, labels, mean_structure)
@@ -533,6 +535,7 @@ class SavedFit:
     warnings: tuple[str, ...]
     group_column: str | None
     payload: dict = field(repr=False)
+    source: str = "the fit result"  # the file, as messages name it
 
     @property
     def admissible(self) -> bool:
@@ -544,19 +547,19 @@ class SavedFit:
 
 def read_saved_fit(path) -> SavedFit:
     """A fit's JSON result (``fit --json``), checked to be one; its problems begin with those of its estimates
-    themselves (:func:`~cfa_tool.assessment.admissibility.estimate_row_problems`)."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind, estimate_not_a_number, estimate_row_problems
+    themselves (:func:`~cfa_tool.assessment.admissibility.saved_fit_problems`), and a row that cannot be read (as
+    an estimate that is not a number) is named in an error."""
+    from cfa_tool.assessment.admissibility import saved_fit_problems
     from cfa_tool.input_files import input_json
     from cfa_tool.pipeline.results import DataSummary
 
+    source = f"'{printable(str(path))}'"
     payload = input_json(Path(path), "fit result", OptionError)
-    text = estimate_not_a_number(payload.get("estimates")) if isinstance(payload, dict) else None
-    if text is not None:
-        raise OptionError(f"'{printable(str(path))}': the estimate of {text}, not a number; write numbers without "
-                          f"quotes, or fit the model again rather than edit its result")
+    if not isinstance(payload, dict) or payload.get("tool") != "cfa-tool" or "estimates" not in payload:
+        raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)")
+    # the estimates themselves judged as a fresh fit is, whatever the file's flag and problems say
+    problems = saved_fit_problems(payload, source)
     try:
-        if payload.get("tool") != "cfa-tool" or "estimates" not in payload:
-            raise ValueError
         d = payload["data"]
         counts = d.get("category_counts") or {}
         categories = tuple(tuple((float(c["value"]), int(c["rows"])) for c in counts.get(x, ())) for x in d["variables"])
@@ -571,38 +574,30 @@ def read_saved_fit(path) -> SavedFit:
                               tuple(float(v) for v in d["sds"]) if d["sds"] is not None else (float("nan"),) * len(means),
                               categories=categories if counts else (), not_given=not_given,
                               missing_codes=tuple(float(v) for v in d.get("missing_codes", ())))
-        problems = tuple(Problem(ProblemKind(q["kind"]), tuple(q["parameters"]), q["value"], q["explanation"],
-                                 q["advice"], q["group"]) for q in payload.get("problems", ()))
-        # the estimates themselves judged as a fresh fit is, whatever the file's flag and problems say
-        problems = estimate_row_problems(payload["estimates"]) + problems
         model = payload["model"]
     except (ValueError, KeyError, TypeError, AttributeError):
-        raise OptionError(f"'{printable(str(path))}' is not the JSON result of a fit by cfa-tool (fit --json)") from None
+        raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)") from None
     return SavedFit(str(model.get("name")), str(model.get("source")), str(payload.get("estimator")), int(payload["n_obs"]),
                     summary, tuple(summary.variables), problems, tuple(payload.get("warnings", ())),
-                    payload.get("group_column"), payload)
+                    payload.get("group_column"), payload, source)
 
 
 def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
     """Each group's scoring model from ``spec`` (the model file the fit was made with) and the estimates of its
-    JSON result: every estimate is matched to its parameter in the model's table (the same kind, variables and
-    group, in the same order), the free parameters are read back, and every estimate is recomputed from them
-    (an error when anything differs: the result is of another model)."""
+    JSON result, read onto the model's parameter table by the one reader of saved estimates
+    (:func:`~cfa_tool.model.saved_estimates.values_on_model`: an error naming what does not match)."""
+    from cfa_tool.model.saved_estimates import saved_rows, values_on_model
     from cfa_tool.pipeline.continuous import model_structure
     from cfa_tool.scoring.model import scoring_model
 
-    estimates = saved.payload["estimates"]
+    rows = saved_rows(saved.payload["estimates"], saved.source)
     multi = saved.group_column is not None
     labels = tuple(g["name"] for g in saved.payload.get("groups", ())) if multi else None
-    another = OptionError(f"the fit result is not of the model {spec.source} (its estimates differ from the model's "
-                          f"parameters); give the model file the fit was made with")
     if saved.payload.get("ordinal_items"):
-        return ordinal_models_of_estimates(spec, estimates, saved.data, labels, another)
-    mean_structure = multi or any(e.get("kind") == "intercept" for e in estimates)
+        return ordinal_models_of_estimates(spec, rows, saved.data, labels, saved.source)
+    mean_structure = multi or any(row.kind == "intercept" for row in rows)
     table, model = model_structure(spec, labels, mean_structure)
-    if len(estimates) != len(table.parameters):
-        raise another
-    theta = _theta_of_estimates(table, estimates, another)
+    theta = values_on_model(rows, table, saved.source, spec.source).theta
     out = []
     for g in range(table.n_groups):
         means = None
@@ -614,91 +609,49 @@ def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
     return out, list(labels) if labels else [None]
 
 
-def _theta_of_estimates(table, estimates: list[dict], another: OptionError, derived=frozenset()) -> np.ndarray:
-    """The free parameters read back from a result's estimates (dictionaries of its JSON), each matched to its
-    parameter in ``table`` (the same kind, variables and group, in the same order), and every estimate recomputed
-    from them: ``another`` when anything differs (the result is of another model).  ``derived``: positions of
-    fixed parameters whose reported value follows from the others (an ordinal fit's residual variances)."""
-    theta = np.full(table.n_free, np.nan)
-    values = []
-    for k, (par, est) in enumerate(zip(table.parameters, estimates)):
-        group = table.groups[par.group] if table.multigroup else None
-        if est.get("kind") != par.kind or tuple(est.get("variables", ())) != par.variables or est.get("group") != group:
-            raise another
-        value = est.get("estimate")
-        if not isinstance(value, (int, float)):
-            raise another
-        if not np.isfinite(value):
-            raise OptionError(f"the fit result gives no number for {par.label} (its estimate is {value}); give the "
-                              f"JSON result as the fit wrote it")
-        if not par.terms and k not in derived and abs(value - par.offset) > 1e-8 * (1.0 + abs(value)):
-            raise OptionError(f"the fit result has {par.label} = {value:g} where the model file fixes it at "
-                              f"{par.offset:g}: the fit was made with another scale or other fixed values (a factor's "
-                              f"automatic marker is its first item not declared reversed); fit the model again and "
-                              f"score from that result")
-        values.append(float(value))
-        if len(par.terms) == 1 and par.terms[0][1] != 0:
-            index, coefficient = par.terms[0]
-            theta[index] = (value - par.offset) / coefficient
-    if np.isnan(theta).any():
-        raise another
-    for k, (par, value) in enumerate(zip(table.parameters, values)):
-        again = par.offset + sum(c * theta[i] for i, c in par.terms)
-        if k not in derived and abs(again - value) > 1e-8 * (1.0 + abs(value)):
-            raise another
-    return theta
-
-
-def ordinal_models_of_estimates(spec, estimates: list[dict], data, labels: tuple[str, ...] | None,
-                                another: OptionError) -> tuple[list, list]:
-    """Each group's :class:`~cfa_tool.scoring.model.OrdinalScoringModel` from the estimates of an ordinal fit (as
-    dictionaries of its JSON) and its data summary (``data``: each ordinal item's answer values, and for one group
-    the means and SDs that standardized the continuous items).  One group: loadings and factor covariances of
-    latent responses of unit variance with the first-step thresholds (listed after the parameters); several
-    groups: thresholds, intercepts and residual variances are parameters (Wu & Estabrook 2016).  Which items are
-    ordinal follows from the fit (the items with answer categories), as it may have been told so by --ordinal."""
+def ordinal_models_of_estimates(spec, rows, data, labels: tuple[str, ...] | None, source: str) -> tuple[list, list]:
+    """Each group's :class:`~cfa_tool.scoring.model.OrdinalScoringModel` from the estimate rows of an ordinal fit
+    (:func:`~cfa_tool.model.saved_estimates.saved_rows`, placed on the model by the one reader of saved estimates)
+    and its data summary (``data``: each ordinal item's answer values, and for one group the means and SDs that
+    standardized the continuous items).  One group: loadings and factor covariances of latent responses of unit
+    variance with the first-step thresholds; several groups: thresholds, intercepts and residual variances are
+    parameters (Wu & Estabrook 2016).  Which items are ordinal follows from the fit (the items with answer
+    categories), as it may have been told so by --ordinal.  ``source`` names the fit in messages."""
     from cfa_tool.model.implied import StructuredModel
     from cfa_tool.model.parameters import build_parameter_table
+    from cfa_tool.model.saved_estimates import values_on_model
     from cfa_tool.pipeline.ordinal import ordinal_spec
     from cfa_tool.scoring.model import group_ordinal_model, one_group_ordinal_model, standardized_latent_responses
 
     names = list(data.variables)
-    if not data.categories or sorted(names) != sorted(spec.observed_names) or not all(
-            isinstance(e, dict) for e in estimates):
-        raise another
+    another = (f"{source} is not of the model {spec.source} (its items, answer categories or latent responses "
+               f"differ); give the model file the fit was made with")
+    if not data.categories or sorted(names) != sorted(spec.observed_names):
+        raise OptionError(another)
     categories = {x: tuple(v for v, _ in cats) for x, cats in zip(names, data.categories)}
-    observed = spec.observed_names
     if labels is not None:
         table = build_parameter_table(spec, labels, ordinal={x: len(c) - 1 for x, c in categories.items() if c})
-        if len(estimates) != len(table.parameters):
-            raise another
         model = StructuredModel(table)
-        theta = _theta_of_estimates(table, estimates, another)
+        theta = values_on_model(rows, table, source, spec.source).theta
         in_order = tuple(categories[x] for x in table.observed)
         return [group_ordinal_model(model, theta, g, label, in_order) for g, label in enumerate(labels)], list(labels)
     fixed_spec, derived_items = ordinal_spec(spec)
     table = build_parameter_table(fixed_spec)
-    k = len(table.parameters)
     derived = frozenset(e for e, par in enumerate(table.parameters)
                         if par.kind == "residual_variance" and par.variables[0] in derived_items)
-    rest = estimates[k:]
-    steps = [(x, str(step + 1)) for x in table.observed for step in range(max(len(categories[x]) - 1, 0))]
-    if len(rest) != len(steps) or any(e.get("kind") != "threshold" or tuple(e.get("variables", ())) != step
-                                      or not isinstance(e.get("estimate"), (int, float)) for e, step in zip(rest, steps)):
-        raise another
-    theta = _theta_of_estimates(table, estimates[:k], another, derived)
-    mats = StructuredModel(table).matrices(theta)
+    saved = values_on_model(rows, table, source, spec.source, derived=derived, aside=("threshold",))
+    thresholds = saved.thresholds()
+    if any(len(thresholds.get(x, ())) != max(len(categories[x]) - 1, 0) for x in table.observed):
+        raise OptionError(another)
+    mats = StructuredModel(table).matrices(saved.theta)
     unit = standardized_latent_responses(mats)
     for e in derived:  # the reported residual variances are 1 minus the common variance
         par = table.parameters[e]
-        if abs(unit.T[par.row, par.row] - float(estimates[e]["estimate"])) > 1e-8:
-            raise another
-    by_item = {x: [] for x in observed}
-    for e in rest:
-        by_item[e["variables"][0]].append(float(e["estimate"]))
+        if abs(unit.T[par.row, par.row] - saved.values[e]) > 1e-8:
+            raise OptionError(another)
     order = [names.index(x) for x in table.observed]
     model = one_group_ordinal_model(mats, table.observed, table.latent,
-                                    [np.asarray(by_item[x]) for x in table.observed],
+                                    [thresholds.get(x, np.zeros(0)) for x in table.observed],
                                     [categories[x] for x in table.observed],
                                     np.asarray(data.means)[order], np.asarray(data.sds)[order])
     return [model], [None]
@@ -707,15 +660,12 @@ def ordinal_models_of_estimates(spec, estimates: list[dict], data, labels: tuple
 def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_errors: bool = False,
                          id_column: str | None = None, sheet: str | None = None, missing_codes=(), keep=()) -> ScoreResult:
     """Scores of the rows of ``data`` with the parameters of a fit saved as JSON (``fit --json``) of ``model``."""
+    from cfa_tool.assessment.admissibility import refuse_inadmissible_saved_fit
     from cfa_tool.pipeline import inputs as api
 
     saved = read_saved_fit(saved_path)
     refuse_unknown_scale(saved.data, f"the fit in '{printable(str(saved_path))}'")
-    if not saved.admissible:
-        first = next((p for p in saved.problems if p.kind.inadmissible), None)
-        why = f" (it has {first.phrase()})" if first is not None else ""
-        raise EstimationError(f"the fit in '{printable(str(saved_path))}' is not admissible{why}, so no factor scores "
-                              f"are computed with it")
+    refuse_inadmissible_saved_fit(saved.payload, saved.problems, saved.source, "no factor scores are computed with it")
     spec = api.load_spec(model)
     chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")))
     models, labels = models_of_saved_fit(spec, saved)

@@ -27,7 +27,7 @@ from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
-from cfa_tool.errors import ModelError, OptionError
+from cfa_tool.errors import ModelError, OptionError, printable
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
@@ -204,117 +204,57 @@ def standardized_entries(table: ParameterTable, model: StructuredModel, theta: n
     return standardize_entries(model.matrices(theta), codes, rows, cols, model.entry_values(theta))[0]
 
 
-_COVARIANCE_KINDS = ("factor_covariance", "residual_covariance")
-
-
-def fitted_estimates(fitted) -> tuple[list[dict], str, bool, bool, bool, dict]:
-    """The estimate rows of an earlier fit and where they came from: ``fitted`` is a fit result, the dict of
-    its JSON (``fit --json``) or the path of that JSON file; last, the whole result as that dict."""
+def fitted_estimates(fitted) -> tuple[str, bool, bool, dict]:
+    """An earlier fit as the dict of its JSON (``fit --json``), last, with where it came from and whether it has
+    groups and ordinal items: ``fitted`` is a fit result, that dict or the path of that JSON file."""
     from pathlib import Path
 
     from cfa_tool.input_files import input_json
 
     if hasattr(fitted, "to_dict") and hasattr(fitted, "estimates"):
         payload = fitted.to_dict()
-        return (payload["estimates"], "the fit result given", bool(fitted.admissible), fitted.multigroup,
-                bool(fitted.method.ordinal), payload)
+        return "the fit result given", fitted.multigroup, bool(fitted.method.ordinal), payload
     source = "the result given"
     if isinstance(fitted, (str, Path)):
-        source = str(fitted)
+        source = f"'{printable(str(fitted))}'"
         fitted = input_json(fitted, "fit result", OptionError)
     if not isinstance(fitted, dict) or not isinstance(fitted.get("estimates"), list):
         raise OptionError(f"{source}: not a result written by 'cfa-tool fit --json' (it has no 'estimates' list)")
-    return (fitted["estimates"], source, fitted.get("admissible", True) is not False, "groups" in fitted,
-            bool(fitted.get("ordinal_items")), fitted)
+    return source, "groups" in fitted, bool(fitted.get("ordinal_items")), fitted
 
 
 def _population_from_fit(spec: Spec, fitted) -> Population:
     """Population values taken from an earlier fit of the same model: every free parameter's estimate, so
-    reverse-keyed loadings, negative correlations and the observed residual variances carry over."""
-    from cfa_tool.assessment.admissibility import estimate_not_a_number, estimate_row_problems
+    reverse-keyed loadings, negative correlations and the observed residual variances carry over.  The rows are
+    read by the one reader of saved estimates (:mod:`cfa_tool.model.saved_estimates`)."""
+    from cfa_tool.assessment.admissibility import refuse_inadmissible_saved_fit, saved_fit_problems
+    from cfa_tool.model.saved_estimates import saved_rows, values_on_model
 
-    rows, source, admissible, grouped, ordinal, payload = fitted_estimates(fitted)
-    text = estimate_not_a_number(rows)
-    if text is not None:
-        raise OptionError(f"{source}: the estimate of {text}, not a number; write numbers without quotes, or fit the "
-                          f"model again rather than edit its result")
+    source, grouped, ordinal, payload = fitted_estimates(fitted)
+    problems = saved_fit_problems(payload, source)  # reads every row: one that is not a number is named here
     if grouped:
         raise OptionError(f"{source}: the fit has groups; population values are taken from a fit of one group")
-    found = estimate_row_problems(rows)  # the estimates themselves, whatever the file's flag says
-    if found:
-        raise OptionError(f"{source}: the fitted solution is not admissible (its estimates have {found[0].phrase()}), "
-                          f"so it cannot serve as a population")
-    if not admissible:
-        problems = payload.get("problems", [])
-        first = problems[0] if problems else None
-        what = first.get("kind") if isinstance(first, dict) else ""
-        raise OptionError(f"{source}: the fitted solution is not admissible ({what or 'see its problems'}), so it "
-                          f"cannot serve as a population")
+    refuse_inadmissible_saved_fit(payload, problems, source, "it cannot serve as a population")
     if spec.starts:
         raise OptionError("give population values either by 'start' statements or from a fitted result, not both")
-
-    def key(kind: str, variables) -> tuple:
-        names = tuple(str(v) for v in variables)
-        return kind, tuple(sorted(names)) if kind in _COVARIANCE_KINDS else names
-
-    value_of = {}
-    thresholds: dict[str, list[float]] = {}
-    for row in rows:
-        try:
-            value = float(row["estimate"])
-            if row["kind"] == "threshold":  # (item, step): first-step thresholds of a one-group ordinal fit
-                item, step = str(row["variables"][0]), int(row["variables"][1])
-                thresholds.setdefault(item, []).append(value)
-                if step != len(thresholds[item]):
-                    raise ValueError
-                continue
-            value_of[key(row["kind"], row["variables"])] = (value, bool(row.get("free", True)))
-        except (KeyError, TypeError, ValueError, IndexError):
-            raise OptionError(f"{source}: an estimate row lacks its kind, variables or value") from None
-    unknown = sorted(set(thresholds) - set(spec.observed_names))
-    if unknown:
-        raise OptionError(f"{source} has thresholds of '{unknown[0]}', which this model does not have: it is the result "
-                          f"of a different model")
+    table = build_parameter_table(spec)
+    # intercepts and factor means (a fit with gaps or groups estimates them) are not part of a population whose
+    # items are simulated centred: set aside for the items' means, not taken for the parameters of another model
+    saved = values_on_model(saved_rows(payload["estimates"], source), table, source, spec.source,
+                            aside=("intercept", "mean", "threshold"))
+    thresholds = saved.thresholds()
     if ordinal and not thresholds:
         raise OptionError(f"{source}: the fit is of ordinal items but gives no thresholds")
-    table = build_parameter_table(spec)
-    known = {key(par.kind, par.variables) for par in table.parameters}
-    # intercepts and factor means (a fit with gaps or groups estimates them) are not part of a population
-    # whose items are simulated centred: they are left out, not taken for the parameters of another model
-    extra = [f"{kind}({', '.join(names)})" for (kind, names), (_, free) in value_of.items() if free and
-             (kind, names) not in known and kind not in ("intercept", "mean")]
-    if extra:
-        raise OptionError(f"{source} estimates {', '.join(extra[:3])}, which this model does not have: it is the "
-                          f"result of a different model")
-    theta = np.full(table.n_free, np.nan)
-    for par in table.parameters:
-        found = value_of.get(key(par.kind, par.variables))
-        label = par.label
-        if found is None:
-            if par.free:
-                raise OptionError(f"{source} has no estimate of {label}: it is the result of a different model")
-            continue
-        value, _ = found
-        if not par.free:
-            if abs(value - par.offset) > 1e-9 * max(1.0, abs(value)):
-                raise OptionError(f"{source} has {label} = {value:g} where the model file fixes it at {par.offset:g}: "
-                                  f"the two models differ (for example in how factors get their scale)")
-            continue
-        k, coefficient = par.terms[0]
-        if len(par.terms) == 1 and np.isnan(theta[k]):
-            theta[k] = value / coefficient
-    missing = [table.free_labels[k] for k in range(table.n_free) if np.isnan(theta[k])]
-    if missing:
-        raise OptionError(f"{source} gives no value for {', '.join(missing[:5])}")
+    theta = saved.theta
     model = StructuredModel(table)
     sigma = model.implied(theta)
     if log_det_pd(sigma) is None:  # not positive definite, or not finite
         raise OptionError(f"{source}: its estimates imply a covariance matrix that is not positive definite or not finite "
                           f"(check its estimates for impossible values)")
-    cuts = {x: np.asarray(thresholds[x], dtype=float) for x in table.observed if x in thresholds}
-    if any(np.any(np.diff(t) <= 0) or not np.isfinite(t).all() for t in cuts.values()):
+    cuts = {x: thresholds[x] for x in table.observed if x in thresholds}
+    if any(np.any(np.diff(t) <= 0) for t in cuts.values()):
         raise OptionError(f"{source}: its thresholds are not increasing finite numbers")
-    means, means_from = _fitted_means(model, theta, value_of, payload, table.observed, ordinal)
+    means, means_from = _fitted_means(model, theta, saved, payload, table.observed, ordinal)
     not_given = payload.get("data", {}).get("not_given", ()) if isinstance(payload.get("data"), dict) else ()
     not_carried = tuple(what for what, had in (("sampling design", payload.get("design") is not None),
                                                ("pattern of missing answers", payload.get("missing_data") is not None)) if had)
@@ -322,19 +262,20 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
                       "standard_deviations" in not_given, not_carried)
 
 
-def _fitted_means(model: StructuredModel, theta: np.ndarray, value_of: dict, payload: dict, observed: tuple[str, ...],
+def _fitted_means(model: StructuredModel, theta: np.ndarray, saved, payload: dict, observed: tuple[str, ...],
                   ordinal: bool) -> tuple[np.ndarray | None, ItemMeans]:
     """The items' population means from an earlier fit: nu + L (I - B)^-1 alpha from its intercepts and factor
     means when it estimated them (the model-implied means, Bollen 1989, ch. 8), else the item means of the rows it
     was fitted to (the maximum-likelihood means of a model without a mean structure); none when the fit knew no
-    means (summary statistics without them) or its items are ordinal (their thresholds set the answers)."""
+    means (summary statistics without them) or its items are ordinal (their thresholds set the answers).
+    ``saved``: the fit's values (:class:`~cfa_tool.model.saved_estimates.SavedValues`), its intercepts set aside."""
     if ordinal:
         return None, ItemMeans.THRESHOLDS
-    intercepts = [value_of.get(("intercept", (x,))) for x in observed]
+    intercepts = [saved.aside_value("intercept", (x,)) for x in observed]
     if all(v is not None for v in intercepts):
         mats = model.matrices(theta)
-        alpha = np.array([value_of.get(("mean", (f,)), (0.0, False))[0] for f in model.table.latent])
-        return np.array([v for v, _ in intercepts]) + mats.L @ (mats.A @ alpha), ItemMeans.INTERCEPTS
+        alpha = np.array([saved.aside_value("mean", (f,)) or 0.0 for f in model.table.latent])
+        return np.array(intercepts) + mats.L @ (mats.A @ alpha), ItemMeans.INTERCEPTS
     data = payload.get("data")
     try:
         if "means" in data.get("not_given", ()):

@@ -250,7 +250,7 @@ def test_scores_from_a_saved_fit_equal_those_of_the_fit_result(tmp_path, model_f
     other_model.write_text("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6, x9\nfactor speed: x7, x8\n")
     code, _, err = _run(["scores", other_model, "--data", other, "--from-fit", saved, "--output", tmp_path / "no.csv"],
                         capsys)
-    assert code == 2 and "not of the model" in err and not (tmp_path / "no.csv").exists()
+    assert code == 2 and "the fit is of another model" in err and not (tmp_path / "no.csv").exists()
 
 
 def test_a_row_without_a_group_is_counted_once(tmp_path, hs_data):

@@ -69,21 +69,37 @@ def test_a_genuinely_inadmissible_fit_is_found_as_the_fit_itself_found_it(hs_dat
 
 
 def test_scores_simulate_and_power_simulation_refuse_an_edited_fit_in_one_line(tmp_path, saved, capsys):
+    # one refusal, declared once (admissibility.refuse_inadmissible_saved_fit): exit 2 from every command that uses a
+    # saved fit's values, as the saved file is an input the run cannot use (scores exited 3, simulate 2)
     model = tmp_path / "hs.cfa"
     model.write_text(THREE_FACTORS)
     edited = tmp_path / "edited.json"
     edited.write_text(json.dumps(_edited(saved, "residual_variance", ["x1"], -0.01)))
-    out = tmp_path / "scores.csv"
-    code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", edited, "--output", out], capsys)
-    assert code == 3 and len(err.strip().splitlines()) == 1 and not out.exists()
-    assert "not admissible (it has a negative residual variance of x1 (-0.01))" in err
-    rows = tmp_path / "rows.csv"
-    code, _, err = _run(["simulate", model, "--n", 50, "--output", rows, "--population-from", edited], capsys)
-    assert code == 2 and len(err.strip().splitlines()) == 1 and not rows.exists()
-    assert "its estimates have a negative residual variance of x1 (-0.01)" in err
-    code, _, err = _run(["power-simulation", model, "--n", 200, "--replications", 2, "--workers", 1,
-                         "--population-from", edited], capsys)
-    assert code == 2 and "negative residual variance of x1" in err and len(err.strip().splitlines()) == 1
+    out, rows = tmp_path / "scores.csv", tmp_path / "rows.csv"
+    words = "the fitted solution is not admissible (it has a negative residual variance of x1 (-0.01)), so "
+    for argv, purpose in (
+            (["scores", model, "--data", HS_FILE, "--from-fit", edited, "--output", out],
+             "no factor scores are computed with it"),
+            (["simulate", model, "--n", 50, "--output", rows, "--population-from", edited],
+             "it cannot serve as a population"),
+            (["power-simulation", model, "--n", 200, "--replications", 2, "--workers", 1, "--population-from", edited],
+             "it cannot serve as a population")):
+        code, _, err = _run(argv, capsys)
+        assert code == 2 and len(err.strip().splitlines()) == 1, (argv[0], err)
+        assert words + purpose in err, err
+    assert not out.exists() and not rows.exists()
+
+
+def test_a_fit_flagged_not_admissible_by_its_file_is_refused_the_same_way(tmp_path, saved, capsys):
+    # the file's own flag (its estimates untouched): the same refusal and exit code from scores and simulate
+    model = tmp_path / "hs.cfa"
+    model.write_text(THREE_FACTORS)
+    flagged = tmp_path / "flagged.json"
+    flagged.write_text(json.dumps(saved | {"admissible": False}))
+    for argv in (["scores", model, "--data", HS_FILE, "--from-fit", flagged, "--output", tmp_path / "s.csv"],
+                 ["simulate", model, "--n", 20, "--output", tmp_path / "r.csv", "--population-from", flagged]):
+        code, _, err = _run(argv, capsys)
+        assert code == 2 and "the fitted solution is not admissible, so " in err, err
 
 
 def test_the_report_of_an_edited_fit_shows_the_problem_first(tmp_path, hs_data, capsys):
@@ -106,36 +122,89 @@ def test_the_report_of_an_edited_fit_shows_the_problem_first(tmp_path, hs_data, 
     assert code == 0 and "not admissible" not in out
 
 
-def test_an_estimate_written_as_text_is_named(tmp_path, saved, capsys):
+# each edit of a saved fit and the words that name it, the same from every reader (model.saved_estimates): the
+# values are the hostile trials' (text, NaN, a missing row, a row of another model) and re-check 6's marker
+UNREADABLE = [
     # hostile trial: a loading typed as "0.8" was called 'the result of another model' (scores) and read as 0.8
     # without a word (simulate)
-    model = tmp_path / "hs.cfa"
-    model.write_text(THREE_FACTORS)
-    edited = tmp_path / "text.json"
-    edited.write_text(json.dumps(_edited(saved, "loading", ["visual", "x2"], "0.8")))
-    code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", edited, "--output", tmp_path / "s.csv"],
-                        capsys)
-    assert code == 2 and 'the estimate of loading(visual, x2) is "0.8", not a number' in err
-    code, _, err = _run(["simulate", model, "--n", 20, "--output", tmp_path / "r.csv", "--population-from", edited],
-                        capsys)
-    assert code == 2 and 'the estimate of loading(visual, x2) is "0.8", not a number' in err
-    assert not (tmp_path / "s.csv").exists() and not (tmp_path / "r.csv").exists()
-
-
-@pytest.mark.parametrize("edit, words", [
+    ("text", 'the estimate of the loading of x2 on visual is "0.8", not a number'),
+    # NaN written into the JSON (json.dumps writes NaN, json.loads reads it back as a float): the report let it pass
+    ("nan", "the estimate of the loading of x2 on visual is NaN, not a number"),
+    ("duplicate", "estimate rows 2 and 25 both give the loading of x2 on visual"),
+]
+UNPLACED = [
+    ("missing", "has no estimate of the loading of x2 on visual, a parameter of the model"),
+    ("another model", "gives the loading of x4 on visual (estimate row 25), which the model"),
     # a fit made with another marker (as fits of a declared-reversed first item were before markers skipped them)
-    (("loading", ["visual", "x1"], 0.9), "the fit result has loading(visual, x1) = 0.9 where the model file fixes it "
-                                         "at 1: the fit was made with another scale or other fixed values"),
-    # NaN written into the JSON (json.dumps writes NaN, json.loads reads it back as a float)
-    (("loading", ["visual", "x2"], float("nan")), "the fit result gives no number for loading(visual, x2)"),
-])
-def test_scores_name_why_a_saved_fit_does_not_match(tmp_path, saved, capsys, edit, words):
-    # re-check 6: both were told 'the fit result is not of the model ...; give the model file the fit was made with'
+    ("marker", "gives 0.9 for the loading of x1 on visual where the model file"),
+]
+
+
+def _edit(saved: dict, how: str) -> dict:
+    payload = copy.deepcopy(saved)
+    rows = payload["estimates"]
+    x2 = next(e for e in rows if e["kind"] == "loading" and e["variables"] == ["visual", "x2"])
+    if how in ("text", "nan"):
+        x2["estimate"] = "0.8" if how == "text" else float("nan")
+    elif how == "duplicate":
+        rows.append(copy.deepcopy(x2))
+    elif how == "missing":
+        rows.remove(x2)
+    elif how == "another model":  # a cross-loading the model does not have, as a fit of another model holds
+        rows.append(copy.deepcopy(x2) | {"variables": ["visual", "x4"], "estimate": 0.3})
+    elif how == "marker":
+        next(e for e in rows if e["variables"] == ["visual", "x1"])["estimate"] = 0.9
+    return payload
+
+
+@pytest.mark.parametrize("how, words", UNREADABLE + UNPLACED)
+def test_scores_and_simulate_name_the_row_they_cannot_place_in_the_same_words(tmp_path, saved, capsys, how, words):
+    assert len(saved["estimates"]) == 24  # so an appended row is row 25
     model = tmp_path / "hs.cfa"
     model.write_text(THREE_FACTORS)
     edited = tmp_path / "edited.json"
-    edited.write_text(json.dumps(_edited(saved, *edit)))
-    out = tmp_path / "scores.csv"
-    code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", edited, "--output", out], capsys)
-    assert code == 2 and len(err.strip().splitlines()) == 1 and not out.exists()
-    assert words in err and "is not of the model" not in err
+    edited.write_text(json.dumps(_edit(saved, how)))
+    out, rows = tmp_path / "s.csv", tmp_path / "r.csv"
+    for argv in (["scores", model, "--data", HS_FILE, "--from-fit", edited, "--output", out],
+                 ["simulate", model, "--n", 20, "--output", rows, "--population-from", edited]):
+        code, _, err = _run(argv, capsys)
+        assert code == 2 and len(err.strip().splitlines()) == 1 and words in err, (argv[0], err)
+        assert "Traceback" not in err
+    assert not out.exists() and not rows.exists()
+
+
+def test_power_simulation_names_a_missing_row_too(tmp_path, saved, capsys):
+    model = tmp_path / "hs.cfa"
+    model.write_text(THREE_FACTORS)
+    edited = tmp_path / "edited.json"
+    edited.write_text(json.dumps(_edit(saved, "missing")))
+    code, _, err = _run(["power-simulation", model, "--n", 200, "--replications", 2, "--workers", 1,
+                         "--population-from", edited], capsys)
+    assert code == 2 and dict(UNPLACED)["missing"] in err
+
+
+@pytest.mark.parametrize("how, words", UNREADABLE)
+def test_the_report_names_an_unreadable_row_as_the_others_do(tmp_path, capsys, how, words):
+    # the report re-judges the estimates, so it reads them by the same rule: a NaN is no longer let through
+    model = tmp_path / "hs.cfa"
+    model.write_text(THREE_FACTORS)
+    fitted = tmp_path / "fit.json"
+    assert _run(["fit", model, "--data", HS_FILE, "--json", fitted], capsys)[0] == 0
+    edited = tmp_path / "edited.json"
+    edited.write_text(json.dumps(_edit(json.loads(fitted.read_text()), how)))
+    code, _, err = _run(["report", edited], capsys)
+    assert code == 2 and len(err.strip().splitlines()) == 1 and words in err, err
+
+
+def test_the_one_reader_gives_the_fit_s_own_free_values(hs_three):
+    # the free parameters read back from the rows are the fit's theta, to the last digit (no recomputation)
+    import numpy as np
+
+    from cfa_tool.model.parameters import build_parameter_table
+    from cfa_tool.language.parser import parse_model
+    from cfa_tool.model.saved_estimates import saved_rows, values_on_model
+
+    table = build_parameter_table(parse_model(THREE_FACTORS))
+    values = values_on_model(saved_rows(hs_three.to_dict()["estimates"], "fit"), table, "fit", "hs.cfa",
+                             aside=("intercept", "mean"))
+    assert np.array_equal(values.theta, hs_three.theta)

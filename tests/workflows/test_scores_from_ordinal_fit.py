@@ -115,14 +115,14 @@ def test_a_json_of_another_model_or_altered_is_refused(tmp_path):
     other = tmp_path / "other.cfa"
     other.write_text("factor f: q2, q1, q3, q4, y1\nordinal q1..q4\n")  # another marker: other parameters
     path = _saved(fitted, tmp_path)
-    with pytest.raises(OptionError, match="the fit result is not of the model"):
+    with pytest.raises(OptionError, match="for the loading of q2 on f where the model file .* fixes it at 1"):
         score_with_saved_fit(other, path, _draw(20, 8))
     payload = json.loads(path.read_text())
     payload["estimates"][-1]["estimate"] = "high"  # a threshold that is not a number
     altered = tmp_path / "altered.json"
     altered.write_text(json.dumps(payload))
     # named as the estimate that is not a number (hostile trial), not as the result of another model
-    with pytest.raises(OptionError, match='the estimate of threshold\\(q4, 4\\) is "high", not a number'):
+    with pytest.raises(OptionError, match='the estimate of threshold 4 of q4 is "high", not a number'):
         score_with_saved_fit(model_file, altered, _draw(20, 8))
 
 
