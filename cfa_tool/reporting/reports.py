@@ -104,7 +104,8 @@ def _with_estimate_problems(report: Report, payload: dict, source: str) -> Repor
     """``report`` with, first, the problems of every fit the result holds that its saved report does not show (a
     file changed after the run): a fit's estimates, when the file has them, are judged as a fresh fit's are (rows
     that cannot be read are an error, by the one reader of saved estimates), and the problems each fit lists that
-    make it inadmissible must be in the saved report's notice (their phrase or explanation in one of its lines)."""
+    make it inadmissible must be said by the saved report (the fit marked inadmissible and the report's notice an
+    inadmissible one)."""
     from dataclasses import replace
 
     from cfa_tool.assessment.admissibility import estimate_row_problems, listed_problems
@@ -124,14 +125,13 @@ def _with_estimate_problems(report: Report, payload: dict, source: str) -> Repor
     for name, fit in _fits_in(payload):
         if fit.get("converged", True) is False:  # its views say it did not converge
             continue
-        listed = listed_problems(fit["problems"], source)
-        shown = [q for q in listed if q.kind.inadmissible and any(q.phrase() in line or q.explanation in line
-                                                                   for line in old)]
-        unshown = [q for q in listed if q.kind.inadmissible and q not in shown]
+        # shown: the fit is marked inadmissible and the saved report opens with an inadmissible notice (the flags,
+        # not the notice's words, decide); otherwise the problems it lists that make it inadmissible come first
+        said = fit.get("admissible") is False and report.notice is not None and report.notice.inadmissible
+        unshown = [] if said else [q for q in listed_problems(fit["problems"], source) if q.kind.inadmissible]
         lines += [f"{name[0].upper() + name[1:]} is not admissible, and the report saved with it does not say so "
                   f"(changed after the run?): {q.explanation} Do not interpret its estimates or fit." for q in unshown]
-        if fit.get("admissible") is False and not shown and not unshown and not (report.notice and
-                                                                                 report.notice.inadmissible):
+        if fit.get("admissible") is False and not said and not unshown:
             lines.append(f"{name[0].upper() + name[1:]} is marked not admissible in this file, and the report saved "
                          f"with it does not say so (changed after the run?): do not interpret its estimates or fit.")
     if not lines:
