@@ -75,7 +75,8 @@ class NonAnswer:
     rows: tuple[int, ...]
 
     def shown(self) -> str:
-        code = f"{self.value:g}" if isinstance(self.value, float) else f"'{printable(self.value)}'"
+        code = (f"{self.value:g}" if isinstance(self.value, float) else printable(self.value)
+                if self.kind is NonAnswerKind.DECLARED else f"'{printable(self.value)}'")  # Stata's .a unquoted
         return code + (f" '{printable(self.label)}'" if self.label and self.kind is not NonAnswerKind.WRITTEN else "")
 
 
@@ -203,7 +204,9 @@ def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items=None) ->
                                       (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds)
     caution = (f"{total} cell{'s' if total != 1 else ''} of the items in {name} hold values that the file {how}, "
                f"read as missing, not as answers: {'; '.join(parts)}.")
-    advice = ("Nothing, if they are not answers: they are left out as empty cells are. To analyse one as an "
-              "answer, " + ("give it another value label in a copy of the file" if kinds != {NonAnswerKind.WRITTEN}
-                            else "write the answer's number in the cell in a copy of the file") + ".")
+    undo = "; ".join(w for k, w in ((NonAnswerKind.LABELLED, "give its code another value label"),
+                                     (NonAnswerKind.DECLARED, "remove its declaration as a missing value"),
+                                     (NonAnswerKind.WRITTEN, "write the answer's number in the cell")) if k in kinds)
+    advice = (f"Nothing, if they are not answers: they are left out as empty cells are. To analyse one as an "
+              f"answer, {undo}, in a copy of the file.")
     return caution, advice

@@ -244,8 +244,8 @@ def _read_labelled(path: Path) -> LoadedData:
     suffix = path.suffix.lower()
     reader = {".sav": pyreadstat.read_sav, ".zsav": pyreadstat.read_sav, ".por": pyreadstat.read_por,
               ".dta": pyreadstat.read_dta}[suffix]
-    try:  # SPSS's user-defined missing values are read as values, then as missing by data.non_answers, which names them
-        frame, meta = reader(str(path), **({"user_missing": True} if suffix in (".sav", ".zsav") else {}))
+    try:  # declared missing values are read as values, then as missing by data.non_answers, which names them
+        frame, meta = reader(str(path), **({} if suffix == ".por" else {"user_missing": True}))
     except Exception as exc:  # pyreadstat raises its own error types
         raise DataError(f"'{path}' cannot be read as a {'Stata' if suffix == '.dta' else 'SPSS'} file ({exc})") from None
     if frame.shape[0] == 0:
@@ -253,7 +253,14 @@ def _read_labelled(path: Path) -> LoadedData:
     labels = {k: v for k, v in (meta.column_names_to_labels or {}).items() if v}
     values = {k: {(float(code) if isinstance(code, (int, float)) else str(code)): str(text) for code, text in v.items()}
               for k, v in (meta.variable_value_labels or {}).items()}
-    frame, declared = declared_missing(frame, getattr(meta, "missing_ranges", None) or {}, values)
+    ranges = dict(getattr(meta, "missing_ranges", None) or {})  # SPSS: values and ranges
+    for column, tags in (getattr(meta, "missing_user_values", None) or {}).items():  # Stata: .a to .z, read as 'a'
+        if column in frame.columns and tags:
+            tagged = {str(t): f".{t}" for t in tags}
+            frame[column] = frame[column].map(lambda v: tagged.get(v, v) if isinstance(v, str) else v)
+            values[column] = {tagged.get(k, k) if isinstance(k, str) else k: v for k, v in values.get(column, {}).items()}
+            ranges[column] = [{"lo": t, "hi": t} for t in tagged.values()]
+    frame, declared = declared_missing(frame, ranges, values)
     return LoadedData(frame, str(path), labels, values, non_answers=declared)
 
 

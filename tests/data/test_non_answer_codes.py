@@ -91,7 +91,7 @@ def test_stata_codes_labelled_as_non_answers_are_read_as_missing_and_said_first(
     assert first.explanation == (
         "7 cells of the items in riders.dta hold values that the file labels as no answer, read as missing, not as "
         "answers: 8 'refused' (3 cells: c2 1, s1 1, s3 1); 9 'Not asked' (4 cells: c2 2, c3 1, s2 1).")
-    assert "another value label in a copy of the file" in first.advice
+    assert first.advice.endswith("To analyse one as an answer, give its code another value label, in a copy of the file.")
     assert result.admissible
     from cfa_tool.reporting.paragraph import methods_paragraph
 
@@ -121,6 +121,22 @@ def test_spss_user_missing_values_are_honoured_and_said(tmp_path, answers, coded
     assert result.problems[0].explanation.startswith(
         "7 cells of the items in riders.sav hold values that the file declares as missing values, read as missing, "
         "not as answers: 8 (3 cells: c2 1, s1 1, s3 1); 9 (4 cells: c2 2, c3 1, s2 1)")
+
+
+def test_stata_missing_values_of_their_own_kind_are_said(tmp_path, answers):
+    # Stata's .a to .z are missing by the format itself: read as missing, as before, and now named with labels
+    import pyreadstat
+
+    data = answers.astype(object)
+    data.loc[3, "c2"], data.loc[40, "s1"], data.loc[41, "s1"] = "a", "b", "b"
+    path = tmp_path / "riders.dta"
+    pyreadstat.write_dta(data, str(path), missing_user_values={"c2": ["a"], "s1": ["b"]},
+                         variable_value_labels={"c2": {**SCALE, "a": "refused"}, "s1": {**SCALE, "b": "not asked"}})
+    first = cfa_tool.check(MODEL, path).problems[0]
+    assert first.explanation == (
+        "3 cells of the items in riders.dta hold values that the file declares as missing values, read as missing, "
+        "not as answers: .a 'refused' (1 cell: c2 1); .b 'not asked' (2 cells: s1 2).")
+    assert first.advice.endswith("remove its declaration as a missing value, in a copy of the file.")
 
 
 def test_a_labelled_code_outside_a_declared_scale_gets_missing_codes_never_a_wider_scale(tmp_path, answers):
