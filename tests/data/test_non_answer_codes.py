@@ -99,6 +99,10 @@ def test_stata_codes_labelled_as_non_answers_are_read_as_missing_and_said_first(
     # the check says so as the fit does
     checked = cfa_tool.check(MODEL, path)
     assert checked.problems[0].explanation == first.explanation
+    from cfa_tool.reporting.workflow_tables import check_report
+
+    coverage = check_report(checked).tables[0]  # read as missing, so not 'counted as an answer here'
+    assert coverage.key == "coverage" and coverage.note is None
 
 
 def test_a_code_given_as_missing_is_not_named_again(tmp_path, coded):
