@@ -61,8 +61,10 @@ def declared_scales(spec: Spec, frame) -> dict[str, tuple[float, float, object, 
 
 
 def _outside(frame, name: str, low: float, high: float):
-    """(the item's values as floats, which lie outside low..high, the share of its answers they are); None when
-    the column is not numbers (the reading of the items names the cell)."""
+    """(the item's values as floats, which lie outside low..high, whether all are whole numbers, whether those
+    outside are at most OTHER_SCALE_SHARE of its answers); None when the column is not numbers (the reading of
+    the items names the cell).  A partner's answers are on the scale when both hold (else it is a measure, or
+    answered on another scale); the statement's own items are on it by declaration."""
     import numpy as np
     import pandas as pd
 
@@ -71,7 +73,8 @@ def _outside(frame, name: str, low: float, high: float):
     values = frame[name].to_numpy(dtype=float, na_value=np.nan)
     answered = np.isfinite(values)
     outside = answered & ((values < low) | (values > high))
-    return values, outside, outside.sum() / max(answered.sum(), 1)
+    whole = bool(np.all(values[answered] == np.round(values[answered])))
+    return values, outside, whole, outside.sum() <= OTHER_SCALE_SHARE * answered.sum()
 
 
 def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dict | None = None) -> None:
@@ -90,8 +93,8 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
         judged = _outside(frame, name, low, high)
         if judged is None:
             continue
-        values, outside, share = judged
-        if not outside.any() or (not named and share > OTHER_SCALE_SHARE):  # a partner on another scale: a note
+        values, outside, whole, few = judged
+        if not outside.any() or not (named or whole and few):  # a partner measured otherwise or on another scale
             continue
         labels = (value_labels or {}).get(name) or {}
         for v in sorted(set(values[outside].tolist())):
@@ -122,8 +125,9 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
     """Answers that look impossible without being refused, named first in every view (column, value, rows):
 
     * answers of the other items of a factor that a 'reversed ... on MIN to MAX' statement keys, outside that
-      scale, when so many (more than OTHER_SCALE_SHARE of the item's answers) that the item is read as answered
-      on another scale (fewer are refused by :func:`check_declared_ranges`, as the statement's own items' are);
+      scale, when so many (more than OTHER_SCALE_SHARE of its answers, all whole numbers) that the item is read
+      as answered on another scale; fewer are refused by :func:`check_declared_ranges`, as the statement's own
+      items' are; an item whose values are not whole numbers is a measure, not answers on the scale (no note);
     * values of an item that has value labels (SPSS, Stata) but not for that value, such as an 8 in an item
       labelled 1 to 7."""
     import numpy as np
@@ -135,7 +139,7 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
     scale_of: dict[str, tuple[float, float, str]] = {}  # partners answered on another scale -> (min, max, factor)
     for x, (low, high, _, named) in declared_scales(spec, frame).items():
         judged = None if named else _outside(frame, x, low, high)
-        if judged is not None and judged[2] > OTHER_SCALE_SHARE:
+        if judged is not None and judged[2] and not judged[3]:  # whole numbers, many outside: another scale
             factor = next(f.name.text for f in spec.factors if x in {i.text for i in f.indicators})
             scale_of[x] = (low, high, factor)
     rows = row_numbers(frame)
