@@ -67,3 +67,12 @@ def test_values_without_a_value_label_are_named(tmp_path, answers):
         "labelled.sav: 'b3' has the value 9 (data row 41), which has no value label, while its other values are "
         "labelled; if it is a typing error or means 'no answer', give --missing-codes 9 (or correct it in a copy of "
         "the file)"]
+
+
+def test_a_partner_measured_in_fractions_is_not_judged_by_the_declared_scale(answers):
+    # a2 as a measure (values with decimals, some below 1): not answers on the 1 to 5 scale, so neither refused
+    # nor named (the Holzinger & Swineford tests beside a reversed item are such measures)
+    measured = answers.assign(a2=answers["a2"] * 0.9 + 0.05)
+    assert 0 < (measured["a2"] < 1).mean() < 0.2  # few outside: judged by the scale if they were whole numbers
+    result = cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", measured)
+    assert not [w for w in result.warnings if "outside the scale" in w]
