@@ -54,3 +54,9 @@ def test_text_dates_compare_as_dates_only_when_written_year_first(tmp_path, ride
     with pytest.raises(OptionError, match=r"holds dates written as text in another form than YYYY-MM-DD .*write them "
                                           r"as YYYY-MM-DD"):
         cfa_tool.check(MODEL, tmp_path / "dmy.csv", keep=["ride_date >= 2026-03-01"])
+
+
+def test_a_date_column_of_a_workbook_is_filtered_by_date(tmp_path, rides):
+    rides.assign(ride_date=pd.to_datetime(rides["ride_date"])).to_excel(tmp_path / "rides.xlsx", index=False)
+    assert (cfa_tool.check(MODEL, tmp_path / "rides.xlsx", keep=["ride_date >= 2026-03-01"]).rows
+            == _on_or_after(rides, datetime.date(2026, 3, 1)))
