@@ -55,6 +55,8 @@ class ProblemKind(enum.Enum):
     SMALL_EFFECTIVE_SAMPLE = ("small effective sample", "small effective sample", False)
     # not of the solution but of the data: values in item columns that look like no answers (data.odd_values)
     VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
+    # values the data file itself marks as no answer, read as missing (data.non_answers): said, not a problem
+    VALUES_READ_AS_MISSING = ("values the file marks as no answer", "read as missing", False)
     # a method or bifactor-like factor whose standardized loadings are all small (assessment.method_factors)
     WEAK_METHOD_FACTOR = ("weak method factor", "small loadings only", False)
     # a factor whose loadings mostly run against its items' keying (assessment.reliability.keying_problems): its
@@ -113,6 +115,8 @@ class Problem:
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
             K.SMALL_EFFECTIVE_SAMPLE: f"an effective sample size of only {v} under the weights",
             K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
+            K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
+                                      "missing values, or as text such as 'refused') were treated as missing",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
             K.FACTOR_POINTS_AGAINST_ITEMS: f"factor {', '.join(names)} pointing against its items (a higher score "

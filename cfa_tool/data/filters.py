@@ -1,12 +1,14 @@
 """Row filters of the tool's own small form: COLUMN OPERATOR VALUE.
 
-Examples: ``district = north``, ``age >= 18``, ``"wave 2" != 1``.  A filter is
-parsed, never evaluated as code.  Operators: = != < <= > >= (text columns
-take only = and !=).
+Examples: ``district = north``, ``age >= 18``, ``"wave 2" != 1``,
+``visit_date >= 2026-03-01``.  A filter is parsed, never evaluated as code.
+Operators: = != < <= > >= (text columns take only = and !=; date columns, and
+text written YYYY-MM-DD, compare as dates).
 """
 
 from __future__ import annotations
 
+import datetime
 import re
 from dataclasses import dataclass
 
@@ -89,9 +91,12 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         if labels and not isinstance(f.value, float) and f.operator in ("=", "!="):
             column = column.map(lambda v: labels.get(v, v) if pd.notna(v) else v)  # codes -> their labels
             by_label = f" (compared with the value labels of '{printable(f.column)}')"
+        dates = None if column.dtype.kind in "iufb" else _as_dates(column)
         numeric = pd.to_numeric(column, errors="coerce") if column.dtype.kind in "iuf" else \
             column.map(lambda v: np.nan if pd.isna(v) else _number_or_nan(v))
-        if isinstance(f.value, float) and numeric.notna().sum() == column.notna().sum():
+        if dates is not None:
+            values, target = dates, _date_target(f)
+        elif isinstance(f.value, float) and numeric.notna().sum() == column.notna().sum():
             values, target = numeric, f.value
         else:
             numbers_only = numeric.notna().sum() == column.notna().sum()
@@ -100,6 +105,12 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
                                   f"{f.operator} compares numbers (write numbers with a decimal point; text is compared "
                                   f"with = or !=)")
             if f.operator not in ("=", "!="):
+                written = _written_date(column)
+                if written is not None:
+                    raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds dates written as text "
+                                      f"in another form than YYYY-MM-DD (such as '{printable(written)}'), whose order "
+                                      f"of day and month the file does not say, so they cannot be compared by order; "
+                                      f"in a copy of the file write them as YYYY-MM-DD, which filters compare as dates")
                 raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds text, which can only be "
                                   f"compared with = or !=")
             values = column.map(lambda v: None if pd.isna(v) else _cell_label(v))
@@ -144,6 +155,49 @@ def _cell_label(value) -> str:
     if isinstance(value, (bool, np.bool_)):
         return "TRUE" if value else "FALSE"
     return label_text(value)
+
+
+#: a date as ISO 8601 writes it (the one form whose order of year, month and day is certain), with a time or not
+_ISO_DATE = re.compile(r"\d{4}-\d{2}-\d{2}(?:[ T]\d{2}:\d{2}(?::\d{2}(?:\.\d+)?)?)?")
+#: a date in another form (14/03/2026, 3.14.26): day and month in an order the file does not say
+_OTHER_DATE = re.compile(r"\d{1,2}[/.-]\d{1,2}[/.-]\d{2,4}")
+
+
+def _as_dates(column: pd.Series) -> pd.Series | None:
+    """A column of dates as timestamps (None for any other column): dates of an SPSS or Stata file or a
+    workbook (read as dates), or text written as YYYY-MM-DD in every cell."""
+    present = column.dropna()
+    if not len(present):
+        return None
+    if column.dtype.kind == "M":
+        return column
+    if all(isinstance(v, (datetime.date, pd.Timestamp, np.datetime64)) for v in present):
+        return pd.to_datetime(column)
+    if all(isinstance(v, str) and _ISO_DATE.fullmatch(v.strip()) for v in present):
+        parsed = pd.to_datetime(column.map(lambda v: v.strip() if isinstance(v, str) else v), errors="coerce",
+                                format="ISO8601")
+        return parsed if parsed.notna().sum() == len(present) else None
+    return None
+
+
+def _date_target(f: RowFilter) -> pd.Timestamp:
+    """The date a filter of a date column compares with, written YYYY-MM-DD (with a time or not)."""
+    text = str(f.value).strip() if isinstance(f.value, str) else ""
+    try:
+        if _ISO_DATE.fullmatch(text):
+            return pd.Timestamp(text)
+    except ValueError:
+        pass
+    raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds dates, which are compared with a "
+                      f"date written as YYYY-MM-DD (such as '{f.column} >= 2026-03-01')")
+
+
+def _written_date(column: pd.Series) -> str | None:
+    """The first cell of a text column of dates in another form than YYYY-MM-DD (14/03/2026), or None."""
+    present = [v.strip() for v in column.dropna() if isinstance(v, str) and v.strip()]
+    if present and all(_OTHER_DATE.fullmatch(v) for v in present):
+        return present[0]
+    return None
 
 
 def _number_or_nan(value) -> float:

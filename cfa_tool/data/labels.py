@@ -34,12 +34,19 @@ def merged_labels(values) -> list[tuple[str, list[str]]]:
 
 
 def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "group", unit: str = "group") -> list[str]:
-    """One note naming the labels of ``column`` that differed only by spaces at their ends or Unicode form and were
-    read as one (none when no labels were merged): of the group column (every command with groups gives it through
+    """Notes on how the labels of ``column`` were read: a column of codes read as their value labels (SPSS, Stata),
+    and labels that differed only by spaces at their ends or Unicode form and were read as one: of the group column (every command with groups gives it through
     :func:`cfa_tool.pipeline.inputs.moments_for` or :func:`cfa_tool.pipeline.inputs.ordinal_groups`), or with
     ``part`` and ``unit`` of a cluster or strata column (cfa_tool.data.sample_design)."""
     values = frame[column].dropna()
     notes = []
+    coded = code_order(frame, column)
+    if coded:
+        pairs = list(coded.items())
+        listed = ", ".join(f"{printable(code)} as '{printable(label)}'" for code, label in pairs[:shown])
+        notes.append(f"the {part} column '{printable(column)}' holds codes with value labels in the data file; its "
+                     f"{unit}s are named by those labels ({listed}"
+                     + (f" and {len(pairs) - shown} more" if len(pairs) > shown else "") + ")")
     spelled = spelled_labels(frame, column, values)
     if spelled:
         notes.append(f"in the {part} column '{printable(column)}', numbers written in different ways were read as one "

@@ -33,41 +33,101 @@ def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: 
             )
 
 
-def check_declared_ranges(spec: Spec, frame, data_source: str) -> None:
-    """Answers of items declared with 'reversed ... on MIN to MAX' must lie on that scale."""
+#: a partner item (not named in the 'reversed' statement) with more than this share of its answers outside the
+#: statement's scale is read as answered on another scale (named in a note), not as holding stray values (refused);
+#: the project's own rule: typing errors and codes for no answer are a few cells, another scale's answers many
+OTHER_SCALE_SHARE = 0.2
+
+
+def declared_scales(spec: Spec, frame) -> dict[str, tuple[float, float, object, bool]]:
+    """The items a 'reversed ... on MIN to MAX' statement gives a scale: {item: (min, max, statement, named)},
+    ``named`` for the statement's own items; the other items of a factor whose reversed items all share one
+    statement's scale are its partners (answered on the same scale, as a questionnaire's items are)."""
+    declared = {item.text: keying for keying in spec.reversed for item in keying.items}
+    unkeyed = spec.method_factors | spec.exploratory_factors
+    out: dict[str, tuple[float, float, object, bool]] = {
+        x: (k.minimum, k.maximum, k, True) for x, k in declared.items() if x in frame.columns}
+    for factor in spec.factors:
+        if factor.name.text in unkeyed:
+            continue
+        names = [i.text for i in factor.indicators]
+        keyed = {(declared[x].minimum, declared[x].maximum): declared[x] for x in names if x in declared}
+        if len(keyed) == 1:  # one declared scale for the factor's reversed items
+            keying = next(iter(keyed.values()))
+            for x in names:
+                if x not in declared and x in frame.columns:
+                    out.setdefault(x, (keying.minimum, keying.maximum, keying, False))
+    return out
+
+
+def _outside(frame, name: str, low: float, high: float):
+    """(the item's values as floats, which lie outside low..high, whether all are whole numbers, whether those
+    outside are at most OTHER_SCALE_SHARE of its answers); None when the column is not numbers (the reading of
+    the items names the cell).  A partner's answers are on the scale when both hold (else it is a measure, or
+    answered on another scale); the statement's own items are on it by declaration."""
     import numpy as np
     import pandas as pd
 
+    if not pd.api.types.is_numeric_dtype(frame[name]):
+        return None
+    values = frame[name].to_numpy(dtype=float, na_value=np.nan)
+    answered = np.isfinite(values)
+    outside = answered & ((values < low) | (values > high))
+    whole = bool(np.all(values[answered] == np.round(values[answered])))
+    return values, outside, whole, outside.sum() <= OTHER_SCALE_SHARE * answered.sum()
+
+
+def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dict | None = None) -> None:
+    """Answers of the items a 'reversed ... on MIN to MAX' statement covers (:func:`declared_scales`) must lie on
+    that scale: one error naming every such item, value (with its value label) and row, and --missing-codes as the
+    remedy (a value beyond the scale is a typing error or a code for no answer); a wider scale is offered second,
+    only when no such value has a value label or looks like a code (data.odd_values.code_like)."""
+    import numpy as np
+
+    from cfa_tool.data.moments import row_numbers
+
     data_name = data_source.replace("\\", "/").rsplit("/", 1)[-1]
-    for keying in spec.reversed:
-        for name in keying.items:
-            if name.text not in frame.columns:
-                continue
-            values = pd.to_numeric(frame[name.text], errors="coerce").to_numpy(dtype=float)
-            outside = values[np.isfinite(values) & ((values < keying.minimum) | (values > keying.maximum))]
-            if len(outside):
-                found = (f"the answer {outside.min():g}" if outside.min() == outside.max()
-                         else f"answers from {outside.min():g} to {outside.max():g}")
-                codes = sorted(set(outside.tolist()))
-                advice = (f"if {' and '.join(f'{c:g}' for c in codes[:3])} "
-                          f"{'means' if len(codes) == 1 else 'mean'} 'no answer', give --missing-codes "
-                          f"{','.join(f'{c:g}' for c in codes[:3])}; otherwise give the scale's real lowest and highest "
-                          f"answers" if len(codes) <= 3 and all(code_like(c) for c in codes)
-                          else "give the scale's real lowest and highest answers")
-                raise ModelError(
-                    f"'{name}' has {found} in {data_name}, outside the scale {keying.minimum:g} to {keying.maximum:g} "
-                    f"declared here; {advice}",
-                    name.location,
-                    spec.source_line(name.location),
-                )
+    rows = row_numbers(frame)
+    found: dict[object, list[tuple[str, float, np.ndarray, str | None]]] = {}
+    for name, (low, high, keying, named) in declared_scales(spec, frame).items():
+        judged = _outside(frame, name, low, high)
+        if judged is None:
+            continue
+        values, outside, whole, few = judged
+        if not outside.any() or not (named or whole and few):  # a partner measured otherwise or on another scale
+            continue
+        labels = (value_labels or {}).get(name) or {}
+        for v in sorted(set(values[outside].tolist())):
+            found.setdefault(keying, []).append((name, v, rows[values == v], labels.get(v)))
+    for keying, stray in found.items():
+        shown = []
+        for name, v, where, label in stray[:6]:
+            cells = (f"data row {where[0]}" if len(where) == 1 else
+                     f"{len(where)} cells: data rows {', '.join(str(r) for r in where[:3])}"
+                     + (" and more" if len(where) > 3 else ""))
+            shown.append(f"'{name}' {v:g}" + (f" '{label}'" if label else "") + f" ({cells})")
+        more = f" and {len(stray) - 6} more" if len(stray) > 6 else ""
+        codes = ",".join(f"{c:g}" for c in sorted({v for _, v, _, _ in stray}))
+        wider = not any(label or code_like(v) for _, v, _, label in stray)  # answers, perhaps, of a wider scale
+        strays = {name for name, *_ in stray}
+        location = next((i.location for i in keying.items if i.text in strays), keying.items[0].location)
+        raise ModelError(
+            f"{data_name} holds answers outside the scale {keying.minimum:g} to {keying.maximum:g} declared here: "
+            f"{'; '.join(shown)}{more}; if they are typing errors or codes for no answer, give --missing-codes "
+            f"{codes} (or correct them in a copy of the file)"
+            + ("; if the scale really runs wider, give its lowest and highest answers here" if wider else ""),
+            location,
+            spec.source_line(location),
+        )
 
 
 def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict | None = None) -> list[str]:
     """Answers that look impossible without being refused, named first in every view (column, value, rows):
 
     * answers of the other items of a factor that a 'reversed ... on MIN to MAX' statement keys, outside that
-      scale (the statement's items themselves are refused by :func:`check_declared_ranges`; their partners may
-      be answered on another scale, so they are named, not refused);
+      scale, when so many (more than OTHER_SCALE_SHARE of its answers, all whole numbers) that the item is read
+      as answered on another scale; fewer are refused by :func:`check_declared_ranges`, as the statement's own
+      items' are; an item whose values are not whole numbers is a measure, not answers on the scale (no note);
     * values of an item that has value labels (SPSS, Stata) but not for that value, such as an 8 in an item
       labelled 1 to 7."""
     import numpy as np
@@ -76,18 +136,12 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
     from cfa_tool.data.moments import row_numbers
 
     data_name = data_source.replace("\\", "/").rsplit("/", 1)[-1]
-    declared = spec.reverse_keyed
-    unkeyed = spec.method_factors | spec.exploratory_factors
-    scale_of: dict[str, tuple[float, float, str]] = {}  # item -> (min, max, factor keyed by the statement)
-    for factor in spec.factors:
-        if factor.name.text in unkeyed:
-            continue
-        names = [i.text for i in factor.indicators]
-        keyed = [declared[x] for x in names if x in declared]
-        if len(set(keyed)) == 1:  # one declared scale for the factor's reversed items
-            for x in names:
-                if x not in declared and x in frame.columns:
-                    scale_of.setdefault(x, (*keyed[0], factor.name.text))
+    scale_of: dict[str, tuple[float, float, str]] = {}  # partners answered on another scale -> (min, max, factor)
+    for x, (low, high, _, named) in declared_scales(spec, frame).items():
+        judged = None if named else _outside(frame, x, low, high)
+        if judged is not None and judged[2] and not judged[3]:  # whole numbers, many outside: another scale
+            factor = next(f.name.text for f in spec.factors if x in {i.text for i in f.indicators})
+            scale_of[x] = (low, high, factor)
     rows = row_numbers(frame)
     out = []
 
@@ -109,7 +163,8 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
             for v in sorted(set(values[answered & ((values < low) | (values > high))].tolist())):
                 out.append(f"{data_name}: '{x}' has the answer {v:g} ({listed(values == v)}), outside the scale "
                            f"{low:g} to {high:g} that the 'reversed' statement declares for the items of {factor}; "
-                           f"check the answer, or give --missing-codes if it means 'no answer'")
+                           f"so many of its answers lie outside that it is read as answered on another scale; if "
+                           f"{v:g} is a typing error or means 'no answer', give --missing-codes {v:g}")
             continue
         labels = (value_labels or {}).get(x)
         if labels:
@@ -117,6 +172,6 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
             if known:
                 for v in sorted(set(values[answered].tolist()) - known):
                     out.append(f"{data_name}: '{x}' has the value {v:g} ({listed(values == v)}), which has no value "
-                               f"label, while its other values are labelled; check the answer, or give --missing-codes "
-                               f"if it means 'no answer'")
+                               f"label, while its other values are labelled; if it is a typing error or means 'no "
+                               f"answer', give --missing-codes {v:g} (or correct it in a copy of the file)")
     return out

@@ -37,6 +37,7 @@ from scipy import optimize
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool.data.moments import numeric_columns, row_numbers
+from cfa_tool.data.odd_values import code_like
 from cfa_tool.data.sample_design import DesignColumns, RowDesign, row_design
 from cfa_tool.errors import DataError, printable
 from cfa_tool.method import WeightKind
@@ -365,9 +366,13 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             item_levels = np.asarray(levels[name], dtype=float)
             empty = [v for v in item_levels if v not in seen]
             if empty:
+                beyond = [f"{v:g}" for v in empty if (v < seen.min() or v > seen.max()) and code_like(v)]  # a code?
+                first = (f"if {' and '.join(beyond)} {'is' if len(beyond) == 1 else 'are'} not a real answer (a typing "
+                         f"error or a code for no answer), give --missing-codes {','.join(beyond)}; if real, "
+                         if beyond else "")
                 raise DataError(f"{source}{where}: no one answered {_categories(empty)} on ordinal item '{name}', which "
                                 f"other groups used; thresholds cannot be compared across groups with an empty category. "
-                                f"The tool does not merge categories: in a copy of the data file, recode "
+                                f"The tool does not merge categories: {first}in a copy of the data file, recode "
                                 f"'{printable(name)}' ({_merged_into(empty, seen)}) in every group; or drop the item from the "
                                 f"model, or leave this group out with a row filter (--keep)")
         else:

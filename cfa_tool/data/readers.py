@@ -20,6 +20,7 @@ from typing import TYPE_CHECKING
 
 import pandas as pd
 
+from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
 from cfa_tool.errors import DataError, printable
 from cfa_tool.input_files import check_input_path, input_bytes, utf16_text
 
@@ -50,6 +51,8 @@ class LoadedData:
     items: ItemColumns | None = None
     #: a workbook of several sheets read without a sheet named: every sheet's name, the one read first
     sheets: tuple[str, ...] = ()
+    #: values the file itself marks as no answer (data.non_answers.NonAnswer), read as missing on reading
+    non_answers: tuple = ()
 
     def sheet_hint(self) -> str:
         """Words for a message about a missing column: which sheet of a workbook of several was read."""
@@ -94,12 +97,15 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = LoadedData(read_table(path, notes, names, text_columns), str(path), notes=tuple(notes),
                             row_names=names[0] if names else None)
     loaded = _composed_names(loaded)
+    frame, written = written_non_answers(loaded.frame, text_columns)  # before the codes: 'refused' made a column text
     if missing_codes:
-        frame = loaded.frame.copy()
+        frame = frame.copy()
         for column in frame.columns:
             if pd.api.types.is_numeric_dtype(frame[column]):
                 frame[column] = frame[column].where(~frame[column].isin(missing_codes))
-        loaded = replace(loaded, frame=frame)
+    frame, labelled = labelled_non_answers(frame, loaded.value_labels, tuple(missing_codes))
+    if frame is not loaded.frame:
+        loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
     return loaded
 
 
@@ -238,8 +244,8 @@ def _read_labelled(path: Path) -> LoadedData:
     suffix = path.suffix.lower()
     reader = {".sav": pyreadstat.read_sav, ".zsav": pyreadstat.read_sav, ".por": pyreadstat.read_por,
               ".dta": pyreadstat.read_dta}[suffix]
-    try:
-        frame, meta = reader(str(path))  # user-defined missing values are read as missing
+    try:  # declared missing values are read as values, then as missing by data.non_answers, which names them
+        frame, meta = reader(str(path), **({} if suffix == ".por" else {"user_missing": True}))
     except Exception as exc:  # pyreadstat raises its own error types
         raise DataError(f"'{path}' cannot be read as a {'Stata' if suffix == '.dta' else 'SPSS'} file ({exc})") from None
     if frame.shape[0] == 0:
@@ -247,7 +253,15 @@ def _read_labelled(path: Path) -> LoadedData:
     labels = {k: v for k, v in (meta.column_names_to_labels or {}).items() if v}
     values = {k: {(float(code) if isinstance(code, (int, float)) else str(code)): str(text) for code, text in v.items()}
               for k, v in (meta.variable_value_labels or {}).items()}
-    return LoadedData(frame, str(path), labels, values)
+    ranges = dict(getattr(meta, "missing_ranges", None) or {})  # SPSS: values and ranges
+    for column, tags in (getattr(meta, "missing_user_values", None) or {}).items():  # Stata: .a to .z, read as 'a'
+        if column in frame.columns and tags:
+            tagged = {str(t): f".{t}" for t in tags}
+            frame[column] = frame[column].map(lambda v: tagged.get(v, v) if isinstance(v, str) else v)
+            values[column] = {tagged.get(k, k) if isinstance(k, str) else k: v for k, v in values.get(column, {}).items()}
+            ranges[column] = [{"lo": t, "hi": t} for t in tagged.values()]
+    frame, declared = declared_missing(frame, ranges, values)
+    return LoadedData(frame, str(path), labels, values, non_answers=declared)
 
 
 def _check_duplicates(header: list[str], where: str) -> None:

@@ -15,6 +15,7 @@ from cfa_tool.data.groups import split_moments
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.matching import answer_range_notes, check_columns, check_declared_ranges
 from cfa_tool.data.moments import SampleMoments, item_columns, missing_summary, row_numbers, sample_moments
+from cfa_tool.data.non_answers import non_answer_caution
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
@@ -103,12 +104,6 @@ def of_summary_statistics(result, moments, notes) -> object:
                    data=replace(result.data, not_given=moments.not_given, analysed=moments.analysed))
 
 
-def load_frame(data: pd.DataFrame | str | Path, sheet: str | None = None,
-               missing_codes: tuple[float, ...] = ()) -> tuple[pd.DataFrame, str]:
-    loaded = load_data(data, sheet, missing_codes)
-    return loaded.frame, loaded.source
-
-
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               text_columns: tuple[str, ...] = ()) -> LoadedData:
     missing_codes = missing_codes_option(missing_codes)
@@ -161,25 +156,22 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         frame, filter_notes = apply_filters(frame, filters, loaded.source, loaded.value_labels)
         notes += filter_notes
     check_columns(spec, columns, loaded.source, loaded.sheet_hint())
-    check_declared_ranges(spec, frame, loaded.source)
+    check_declared_ranges(spec, frame, loaded.source, loaded.value_labels)
     notes += answer_range_notes(spec, frame, loaded.source, loaded.value_labels)
-    frame, labelled = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)
-    if labelled:
-        notes.append(f"{loaded.source}: the codes of {', '.join(repr(c) for c in labelled)} are read as their value "
-                     f"labels (groups, clusters and filters name them so)")
+    frame = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)  # said where used (labels.label_notes)
     items = item_columns(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
     return spec, replace(loaded, frame=frame, read_frame=loaded.frame if keep else None,
                          row_filters=tuple(f.text for f in filters), items=items,
                          odd_values=odd_values(frame, spec.observed_names, row_numbers(frame), items.values)), notes
 
 
-def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> tuple[pd.DataFrame, list[str]]:
+def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> pd.DataFrame:
     """Columns other than the model's items whose every code has a value label (SPSS, Stata), as those labels:
     a group column of codes 1..5 labelled 'Dispatch', 'Fleet', ... gives groups named so.  Items keep their codes
     (the answers are numbers); a column with unlabelled codes (weights, say) stays as it is."""
     labelled = labelled_codes(frame, value_labels, items)
     if not labelled:
-        return frame, []
+        return frame
     frame = frame.copy()
     coded = dict(frame.attrs.get(CODED_LABELS, {}))
     for column in labelled:
@@ -187,7 +179,7 @@ def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> tuple[pd
         frame[column] = frame[column].map(lambda v: labels.get(v, v) if pd.notna(v) else v)
         coded[column] = {label_text(code): label_text(labels[code]) for code in sorted(labels, key=_code_key)}
     frame.attrs[CODED_LABELS] = coded  # groups keep the file's order of codes and can be named by code
-    return frame, labelled
+    return frame
 
 
 def _code_key(code) -> tuple:
@@ -329,19 +321,25 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
 
 
 def odd_value_problems(loaded: LoadedData) -> tuple:
-    """Values in the item columns that look like no answers (a missing-value code, a totals row), as cautions
-    that come first in every view (assessment.admissibility.Problem)."""
+    """Values in the item columns that look like no answers (a missing-value code, a totals row), and those the
+    file marks as no answer and that were read as missing (data.non_answers), as cautions that come first in
+    every view (assessment.admissibility.Problem)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    return tuple(Problem(ProblemKind.VALUES_NOT_ANSWERS, (), None, odd.caution(loaded.source), odd.advice())
-                 for odd in loaded.odd_values)
+    marked = non_answer_caution(loaded.non_answers, loaded.source,
+                                loaded.items.names if loaded.items is not None else None)
+    return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
+        Problem(ProblemKind.VALUES_NOT_ANSWERS, (), None, odd.caution(loaded.source), odd.advice())
+        for odd in loaded.odd_values)
 
 
-def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> LoadedData:
-    """``frame`` as loaded data holding the values among the columns ``names`` that look like no answers, for the
-    commands that read their data without :func:`read_inputs_with_notes` (replicate, explore): their cautions
+def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answers: tuple = ()) -> LoadedData:
+    """``frame`` as loaded data holding the values among the columns ``names`` that look like no answers, and
+    those of ``non_answers`` (``LoadedData.non_answers``, read as missing) in them, for the commands that read
+    their data without :func:`read_inputs_with_notes` (replicate, explore): their cautions
     (:func:`odd_value_problems`) and :func:`odd_values_named` then work as for every other command."""
-    return LoadedData(frame, source, odd_values=odd_values(frame, tuple(names), row_numbers(frame)))
+    return LoadedData(frame, source, odd_values=odd_values(frame, tuple(names), row_numbers(frame)),
+                      non_answers=tuple(f for f in non_answers if f.column in set(names)))
 
 
 def with_odd_values(result, loaded: LoadedData):

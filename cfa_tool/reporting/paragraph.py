@@ -312,6 +312,9 @@ def _sample_phrase(result) -> str:
     if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
                  f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair{_PAIRWISE_ASSUMPTION}")
+    marked = next((p for p in getattr(result, "problems", ()) if p.kind is ProblemKind.VALUES_READ_AS_MISSING), None)
+    if marked is not None:
+        text += f"; {marked.phrase()}"  # a clause: the values were treated as missing
     if data.rows_dropped:
         if full_information or result.method.missing is MissingData.PAIRWISE:
             text += f"; {data.rows_dropped} of {data.rows_read} rows answered no model variable and were left out"

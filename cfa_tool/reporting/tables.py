@@ -796,7 +796,7 @@ def category_table(result, group: int = 0) -> ReportTable | None:
     if not d.categories or not any(d.categories):
         return None
     codes = sorted({v for cats in d.categories for v, _ in cats})  # the columns: the answer codes themselves
-    rows, values, single, flagged = [], [], [], []
+    rows, values, single, flagged, ends = [], [], [], [], set()
     for name, cats in zip(d.variables, d.categories):
         if not cats:
             continue
@@ -805,14 +805,19 @@ def category_table(result, group: int = 0) -> ReportTable | None:
         if 1 in count.values():  # a category of one answer: the item's row is flagged
             flagged.append(len(rows))
             single += [f"{name} {v:g}" for v, c in cats if c == 1]
+            ends |= {v for v, c in (cats[0], cats[-1]) if c == 1}  # the lowest or highest answer: a stray value?
         rows.append([name] + [f"{count[v]} ({100 * count[v] / total:.0f}%)" if v in count else "" for v in codes])
         values.append([name] + [count.get(v) for v in codes])
     label = result.groups[group].label
     where = f" in group {label}" if label is not None else ""
     weights = _weights_column(result)
+    stray = ",".join(f"{v:g}" for v in sorted(ends))
     lonely = ("" if not single else
               f" Answered by one row only: {', '.join(single)}; a threshold next to such a category rests on that one "
-              f"answer and is unstable (merge the category with its neighbour, or check the answer).")
+              f"answer and is unstable. Check the answer first"
+              + (f": if {stray.replace(',', ' or ')} is a typing error or a code for no answer, give --missing-codes "
+                 f"{stray}; a real answer's category can be merged with its neighbour's in a copy of the data file."
+                 if ends else "; a real answer's category can be merged with its neighbour's in a copy of the data file."))
     return _table(f"categories_{group}", f"Answers per category{where} (rows analysed"
                   + ("" if weights is None else ", each counted once: unweighted") + ")",
                   [("Item", "l")] + [(f"{v:g}", "r") for v in codes], rows,

@@ -927,7 +927,8 @@ def check_report(found) -> Report:
     lines = found.summary().splitlines()
     rows = [[name, "100%" if share >= 1 else _percent_below_all(share)] for name, share in found.coverage.items()]
     counted = ("A value that looks like no answer (named above) counts as an answer here, as the fit would count it; "
-               "marked as missing (--missing-codes, or an empty cell), it would not." if found.problems else None)
+               "marked as missing (--missing-codes, or an empty cell), it would not."
+               if any(p.kind is ProblemKind.VALUES_NOT_ANSWERS for p in found.problems) else None)
     table = _table("coverage", "Share of rows answering each model variable", [("Variable", "l"), ("Answered", "r")],
                    rows, counted, values=(["Variable", "Share answering"], [[k, v] for k, v in found.coverage.items()]))
     notice = T.problem_notice(found)

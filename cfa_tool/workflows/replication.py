@@ -36,7 +36,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.model.parameters import one_group_only
-from cfa_tool.pipeline.inputs import (load_frame, load_spec, make_options, odd_value_problems, odd_values_named,
+from cfa_tool.pipeline.inputs import (load_data, load_spec, make_options, odd_value_problems, odd_values_named,
                                       refit_missing_handling, screened)
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
@@ -259,13 +259,12 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     if _same_file(calibration, validation):
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           "new data (or give one file as --data to split it in two random halves)")
-    cal_frame, cal_source = load_frame(calibration, sheet, missing_codes)
-    val_frame, val_source = load_frame(validation, sheet, missing_codes)
+    read = [load_data(calibration, sheet, missing_codes), load_data(validation, sheet, missing_codes)]
+    (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     for frame, source in ((cal_frame, cal_source), (val_frame, val_source)):
         check_columns(spec, [str(c) for c in frame.columns], source)
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
-    screens = [screened(frame, spec.observed_names, source)
-               for frame, source in ((cal_frame, cal_source), (val_frame, val_source))]
+    screens = [screened(loaded.frame, spec.observed_names, loaded.source, loaded.non_answers) for loaded in read]
     with odd_values_named(next((s for s in screens if s.odd_values), screens[0])):
         if ordinal_items:
             result = replicate_ordinal(spec, _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise),
@@ -287,9 +286,10 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
                                                      options if missing is None else {**options, "missing": missing})
-    frame, source = load_frame(data, sheet, missing_codes)
+    loaded = load_data(data, sheet, missing_codes)
+    frame, source = loaded.frame, loaded.source
     check_columns(spec, [str(c) for c in frame.columns], source)
-    screen = screened(frame, spec.observed_names, source)
+    screen = screened(frame, spec.observed_names, source, loaded.non_answers)
     with odd_values_named(screen):
         pair, halves = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)
     problems = odd_value_problems(screen)

@@ -1,7 +1,8 @@
-"""Answers that look impossible are named (column, value, data rows) before anything else, without refusing the
-data: answers outside the scale a 'reversed' statement declares, in the other items of the factors it keys, and
-values without a value label in an item whose other values are labelled (new-user trial U3).  Check values: the
-cells set by hand below."""
+"""Answers that look impossible are named (column, value, data rows): answers outside the scale a 'reversed'
+statement declares are refused in every item it covers (its own and the other items of the factors it keys);
+a partner answered mostly outside it, and values without a value label in an item whose other values are
+labelled, are named without refusing the data (new-user trials U3, 7 U12).  Check values: the cells set by hand
+below."""
 
 from __future__ import annotations
 
@@ -10,6 +11,7 @@ import pandas as pd
 import pytest
 
 import cfa_tool
+from tests.data.test_non_answer_codes import refusal
 
 ITEMS = ["a1", "a2", "a3", "b1", "b2", "b3"]
 MODEL = "factor a: a1..a3\nfactor b: b1..b3\n"
@@ -26,12 +28,28 @@ def answers():
     return data
 
 
-def test_partners_of_reversed_items_outside_the_declared_scale_are_named(answers):
-    result = cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", answers)
+def test_partners_of_reversed_items_outside_the_declared_scale_are_refused_as_the_named_items_are(answers):
+    # one rule for every item the statement's scale covers (new-user trial 7, U12: a note on the partners let the
+    # stray answers become categories); the remedy first is --missing-codes, a wider scale only second
+    assert refusal(MODEL + "reversed a1 on 1 to 5\n", answers) == (
+        "<data frame> holds answers outside the scale 1 to 5 declared here: 'a2' 0 (2 cells: data rows 10, 20); if "
+        "they are typing errors or codes for no answer, give --missing-codes 0 (or correct them in a copy of the "
+        "file); if the scale really runs wider, give its lowest and highest answers here")
+    # b is not keyed by the statement: its 9 is not judged by that scale
+    fitted = cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", answers, missing_codes=[0])
+    assert not [w for w in fitted.warnings if "outside the scale" in w]
+
+
+def test_a_partner_answered_mostly_outside_the_declared_scale_is_read_as_on_another_scale(answers):
+    # a2 answered on a scale of even numbers to 10 (and the two 0s): more than OTHER_SCALE_SHARE of its answers
+    # outside 1 to 5, so it is read as answered on another scale and named, not refused
+    doubled = answers.assign(a2=answers["a2"] * 2)
+    assert ((doubled["a2"] < 1) | (doubled["a2"] > 5)).mean() > 0.2
+    result = cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", doubled)
     named = [w for w in result.warnings if "outside the scale 1 to 5" in w]
-    assert named == ["<data frame>: 'a2' has the answer 0 (data rows 10, 20), outside the scale 1 to 5 that the "
-                     "'reversed' statement declares for the items of a; check the answer, or give --missing-codes if "
-                     "it means 'no answer'"]  # b is not keyed by the statement: its 9 is not judged by that scale
+    assert [w.split(" (")[0] for w in named] == [f"<data frame>: 'a2' has the answer {v}" for v in (0, 6, 8, 10)]
+    assert all("read as answered on another scale" in w for w in named)
+    assert named[0].endswith("if 0 is a typing error or means 'no answer', give --missing-codes 0")
 
 
 def test_values_without_a_value_label_are_named(tmp_path, answers):
@@ -44,6 +62,17 @@ def test_values_without_a_value_label_are_named(tmp_path, answers):
     named = [w for w in result.warnings if "has no value label" in w]
     assert named == [
         "labelled.sav: 'a2' has the value 0 (data rows 10, 20), which has no value label, while its other values are "
-        "labelled; check the answer, or give --missing-codes if it means 'no answer'",
+        "labelled; if it is a typing error or means 'no answer', give --missing-codes 0 (or correct it in a copy of "
+        "the file)",
         "labelled.sav: 'b3' has the value 9 (data row 41), which has no value label, while its other values are "
-        "labelled; check the answer, or give --missing-codes if it means 'no answer'"]
+        "labelled; if it is a typing error or means 'no answer', give --missing-codes 9 (or correct it in a copy of "
+        "the file)"]
+
+
+def test_a_partner_measured_in_fractions_is_not_judged_by_the_declared_scale(answers):
+    # a2 as a measure (values with decimals, some below 1): not answers on the 1 to 5 scale, so neither refused
+    # nor named (the Holzinger & Swineford tests beside a reversed item are such measures)
+    measured = answers.assign(a2=answers["a2"] * 0.9 + 0.05)
+    assert 0 < (measured["a2"] < 1).mean() < 0.2  # few outside: judged by the scale if they were whole numbers
+    result = cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", measured)
+    assert not [w for w in result.warnings if "outside the scale" in w]

@@ -65,7 +65,8 @@ def test_a_row_filter_by_a_value_label_of_an_spss_file(tmp_path, hs_items):
     same = data.assign(school=hs_items["school"])  # the same rounded numbers, with the labels as text
     assert grouped.fit.chi_square == pytest.approx(cfa_tool.fit(THREE_FACTORS, same, group="school",
                                                                 reference_group="Pasteur").fit.chi_square, rel=1e-6)
-    assert any("the codes of 'school' are read as their value labels" in w for w in grouped.warnings)
+    assert ("the group column 'school' holds codes with value labels in the data file; its groups are named by those "
+            "labels (1 as 'Grant-White', 2 as 'Pasteur')") in grouped.warnings
     # groups keep the file's order of codes, and the reference group can be given by its code as filters take it
     # (new-user trial: labels sorted as text made the later wave the reference)
     path2 = tmp_path / "hs_codes_reversed.sav"

@@ -1,0 +1,212 @@
+"""Values that a data file itself marks as no answer, read as missing and named first in every view.
+
+Three ways a file says a value is not an answer:
+
+* a **value label** that says so (SPSS, Stata): 8 labelled 'refused', 9 labelled 'not asked';
+* a **declared missing value** (SPSS's user-defined missing values and ranges);
+* a **text cell** that says so in a column of numbers (CSV, TSV, Excel): 'refused', "don't know".
+
+Such values are not answers by the file's own words.  Analysed as answers, they would become the most extreme
+answers (8 and 9 above a 0-3 scale; categories above the top answer in an ordinal fit), so they are read as
+missing, as empty cells are, and every view names them first (items, codes, labels, counts), so that the
+researcher can see and undo the reading (by another label in a copy of the file).
+
+The words are the project's own list of the phrases survey files commonly use for non-answers (common practice
+of survey data management, not a published standard); a label counts when, in lower case and with punctuation
+and extra spaces ignored, it is one of the phrases or several joined by '/', ',' or 'or' ("don't know / refused").
+"""
+
+from __future__ import annotations
+
+import enum
+import re
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from cfa_tool.errors import printable
+
+#: phrases that say a value is not an answer (compared after :func:`_plain`): one vocabulary for labels and cells
+NON_ANSWER_PHRASES = frozenset({
+    "refused", "refusal", "refused to answer", "refused to say", "declined", "declined to answer",
+    "don t know", "dont know", "do not know", "not known", "not sure don t know",
+    "not asked", "not applicable", "inapplicable", "does not apply", "na not applicable", "legitimate skip",
+    "no answer", "not answered", "no response", "non response", "nonresponse", "missing", "missing value",
+    "system missing", "skipped", "skip", "valid skip", "prefer not to say", "prefer not to answer",
+    "rather not say", "not stated", "no data", "question not asked",
+})
+
+SHOWN = 6  # columns a caution names before 'and N more'
+
+
+def _plain(text: str) -> str:
+    """Lower case; apostrophes, punctuation and runs of spaces as one space."""
+    return " ".join(re.sub(r"[^\w]+", " ", text.lower().replace("_", " ")).split())
+
+
+def says_no_answer(text) -> bool:
+    """Whether a value label or a cell's text says the value is not an answer: one of the phrases, or several
+    joined by '/', ',', ';', '&' or 'or' ("Don't know / refused")."""
+    if not isinstance(text, str) or not text.strip():
+        return False
+    parts = [_plain(p) for p in re.split(r"[/,;&]|\bor\b", text.lower())]
+    parts = [p for p in parts if p]
+    return bool(parts) and all(p in NON_ANSWER_PHRASES for p in parts)
+
+
+class NonAnswerKind(enum.Enum):
+    """How the file marks the value; ``value`` is the word the JSON uses."""
+
+    LABELLED = "value label says no answer"
+    DECLARED = "declared missing in the file"
+    WRITTEN = "cell text says no answer"
+
+
+@dataclass(frozen=True)
+class NonAnswer:
+    """One code (or text) of one column that the file marks as no answer, read as missing: ``rows`` are the
+    data-row numbers (1 = the first row after the header) of its cells."""
+
+    kind: NonAnswerKind
+    column: str
+    value: float | str
+    label: str | None
+    rows: tuple[int, ...]
+
+    def shown(self) -> str:
+        code = (f"{self.value:g}" if isinstance(self.value, float) else printable(self.value)
+                if self.kind is NonAnswerKind.DECLARED else f"'{printable(self.value)}'")  # Stata's .a unquoted
+        return code + (f" '{printable(self.label)}'" if self.label and self.kind is not NonAnswerKind.WRITTEN else "")
+
+
+def _numbers(values) -> np.ndarray:
+    return np.arange(1, len(values) + 1)
+
+
+def labelled_non_answers(frame: pd.DataFrame, value_labels: dict, skip: tuple[float, ...] = ()
+                         ) -> tuple[pd.DataFrame, tuple[NonAnswer, ...]]:
+    """``frame`` with the codes whose value label says no answer read as missing (numeric columns), and what was
+    read so; codes in ``skip`` (given as missing codes already) are left to them."""
+    found: list[NonAnswer] = []
+    out = frame
+    for column, labels in value_labels.items():
+        if column not in frame.columns or not pd.api.types.is_numeric_dtype(frame[column]):
+            continue
+        codes = {code: text for code, text in labels.items()
+                 if isinstance(code, float) and code not in skip and says_no_answer(text)}
+        if not codes:
+            continue
+        values = frame[column].to_numpy(dtype=float, na_value=np.nan)
+        hit = np.zeros(len(values), dtype=bool)
+        for code, text in sorted(codes.items()):
+            cells = values == code
+            if cells.any():
+                found.append(NonAnswer(NonAnswerKind.LABELLED, column, code, text,
+                                       tuple(int(r) for r in np.flatnonzero(cells) + 1)))
+                hit |= cells
+        if hit.any():
+            if out is frame:
+                out = frame.copy()
+            out[column] = frame[column].where(~hit)
+    return out, tuple(found)
+
+
+def declared_missing(frame: pd.DataFrame, ranges: dict, value_labels: dict) -> tuple[pd.DataFrame, tuple[NonAnswer, ...]]:
+    """``frame`` (read with its user-defined missing values as values) with the values that the file declares
+    missing (SPSS: ``ranges`` {column: [{'lo': .., 'hi': ..}]}) read as missing, and what was read so."""
+    found: list[NonAnswer] = []
+    out = frame
+    for column, spans in (ranges or {}).items():
+        if column not in frame.columns:
+            continue
+        series = frame[column]
+        hit = np.zeros(len(series), dtype=bool)
+        numeric = pd.api.types.is_numeric_dtype(series)
+        values = series.to_numpy(dtype=float, na_value=np.nan) if numeric else series.to_numpy(dtype=object)
+        labels = value_labels.get(column, {})
+        for span in spans:
+            lo, hi = span.get("lo"), span.get("hi")
+            if numeric and isinstance(lo, (int, float)) and isinstance(hi, (int, float)):
+                cells = (values >= lo) & (values <= hi)
+            elif not numeric and isinstance(lo, str) and lo == hi:
+                cells = np.array([isinstance(v, str) and v.strip() == lo.strip() for v in values], dtype=bool)
+            else:
+                continue
+            cells &= ~hit
+            for value in sorted({v for v in values[cells]}, key=lambda v: (isinstance(v, str), v)):
+                same = cells & (values == value)
+                key = float(value) if numeric else str(value)
+                found.append(NonAnswer(NonAnswerKind.DECLARED, column, key, labels.get(key),
+                                       tuple(int(r) for r in np.flatnonzero(same) + 1)))
+            hit |= cells
+        if hit.any():
+            if out is frame:
+                out = frame.copy()
+            out[column] = series.where(~hit)
+            if not numeric:  # a text column left with numbers only is a column of numbers
+                converted = pd.to_numeric(out[column], errors="coerce")
+                if converted.notna().sum() == out[column].notna().sum():
+                    out[column] = converted
+    return out, tuple(found)
+
+
+def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = ()) -> tuple[pd.DataFrame, tuple[NonAnswer, ...]]:
+    """``frame`` with text cells that say no answer ('refused', "don't know") read as missing in columns that hold
+    numbers otherwise (such a cell made the whole column text), and what was read so; ``keep_text`` (id columns)
+    are left as written."""
+    found: list[NonAnswer] = []
+    out = frame
+    for column in frame.columns:
+        series = frame[column]
+        if column in keep_text or pd.api.types.is_numeric_dtype(series) or not (
+                series.dtype == object or pd.api.types.is_string_dtype(series)):
+            continue
+        said = [v for v in series.dropna().unique() if isinstance(v, str) and says_no_answer(v)]  # distinct texts
+        if not said:
+            continue
+        texts = series.isin(said).to_numpy(dtype=bool)
+        rest = series.where(~texts)
+        stripped = series.map(lambda v: v.strip() if isinstance(v, str) else v)  # Excel: numbers beside the text
+        numbers = pd.to_numeric(stripped.where(~texts), errors="coerce").astype(float)
+        for text in sorted({v.strip() for v in said}):
+            cells = (stripped == text).to_numpy(dtype=bool)
+            found.append(NonAnswer(NonAnswerKind.WRITTEN, column, text, None,
+                                   tuple(int(r) for r in np.flatnonzero(cells) + 1)))
+        if out is frame:
+            out = frame.copy()
+        # a column of numbers with those cells empty; one that holds other text keeps it (its reader names the cell)
+        out[column] = numbers if numbers.notna().sum() == rest.notna().sum() else rest
+    return out, tuple(found)
+
+
+def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items=None) -> tuple[str, str] | None:
+    """The caution (one line) and its advice naming the values of the model's ``items`` (None: of every column
+    in ``found``) that the file marks as no answer and that were read as missing: each code with its label, the
+    items and their cells; None if none."""
+    mine = [f for f in found if items is None or f.column in set(items)]
+    if not mine:
+        return None
+    name = source.replace("\\", "/").rsplit("/", 1)[-1]
+    by_value: dict[tuple, list[NonAnswer]] = {}
+    for f in mine:
+        by_value.setdefault((f.kind, f.value, f.label if f.kind is NonAnswerKind.LABELLED else None), []).append(f)
+    parts = []
+    for group in by_value.values():
+        cells = sum(len(f.rows) for f in group)
+        listed = ", ".join(f"{printable(f.column)} {len(f.rows)}" for f in group[:SHOWN])
+        more = f" and {len(group) - SHOWN} more items" if len(group) > SHOWN else ""
+        parts.append(f"{group[0].shown()} ({cells} cell{'s' if cells != 1 else ''}: {listed}{more})")
+    total = sum(len(f.rows) for f in mine)
+    kinds = {f.kind for f in mine}
+    how = " and ".join(w for k, w in ((NonAnswerKind.LABELLED, "labels as no answer"),
+                                      (NonAnswerKind.DECLARED, "declares as missing values"),
+                                      (NonAnswerKind.WRITTEN, "writes as no answer")) if k in kinds)
+    caution = (f"{total} cell{'s' if total != 1 else ''} of the items in {name} hold values that the file {how}, "
+               f"read as missing, not as answers: {'; '.join(parts)}.")
+    undo = "; ".join(w for k, w in ((NonAnswerKind.LABELLED, "give its code another value label"),
+                                     (NonAnswerKind.DECLARED, "remove its declaration as a missing value"),
+                                     (NonAnswerKind.WRITTEN, "write the answer's number in the cell")) if k in kinds)
+    advice = (f"Nothing, if they are not answers: they are left out as empty cells are. To analyse one as an "
+              f"answer, {undo}, in a copy of the file.")
+    return caution, advice

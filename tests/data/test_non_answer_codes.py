@@ -1,0 +1,224 @@
+"""Values a data file itself marks as no answer (a value label 'refused', an SPSS user-missing value, a text cell
+'refused') are read as missing and named first in every view, never analysed as the most extreme answers; values
+outside a declared scale get --missing-codes as their remedy (new-user trial 7: U1, U4, U10, U12, U14).
+
+The data are invented (a fictional transit agency's rider survey: ride comfort c1..c3 and staff courtesy s1..s3,
+answered 0 to 3), written as Stata and SPSS files by pyreadstat, an independent writer of those formats.  Check
+values: the cells set by hand below (which rows hold which code), counted here by numpy; the fit of the file
+with its marked cells is compared with the fit of the same answers with those cells left empty."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.data.non_answers import says_no_answer
+from cfa_tool.errors import DataError, ModelError
+
+ITEMS = ["c1", "c2", "c3", "s1", "s2", "s3"]
+MODEL = "factor comfort: c1..c3\nfactor courtesy: s1..s3\nordinal c1..c3, s1..s3\n"
+SCALE = {0: "never", 1: "sometimes", 2: "often", 3: "always"}
+REFUSED = {3: "c2", 40: "s1", 77: "s3"}  # row position -> item coded 8 'refused'
+NOT_ASKED = {5: "c2", 6: "c2", 90: "c3", 150: "s2"}  # coded 9 'Not asked'
+
+
+@pytest.fixture(scope="module")
+def answers() -> pd.DataFrame:
+    rng = np.random.default_rng(2207)
+    eta = rng.normal(size=(400, 2)) @ np.linalg.cholesky([[1, 0.5], [0.5, 1]]).T
+    latent = np.repeat(eta, 3, axis=1) * 0.75 + rng.normal(size=(400, 6)) * 0.66
+    return pd.DataFrame(np.digitize(latent, [-0.6, 0.3, 1.1]).astype(float), columns=ITEMS)
+
+
+@pytest.fixture(scope="module")
+def coded(answers) -> pd.DataFrame:
+    data = answers.copy()
+    for row, item in REFUSED.items():
+        data.loc[row, item] = 8
+    for row, item in NOT_ASKED.items():
+        data.loc[row, item] = 9
+    return data
+
+
+def _blanked(answers: pd.DataFrame) -> pd.DataFrame:
+    data = answers.copy()
+    for row, item in {**REFUSED, **NOT_ASKED}.items():
+        data.loc[row, item] = np.nan
+    return data
+
+
+def refusal(model: str, data, **options) -> str:
+    """The one-line message with which a check of ``model`` on ``data`` is refused."""
+    with pytest.raises(ModelError) as caught:
+        cfa_tool.check(model, data, **options)
+    return caught.value.message
+
+
+def _labels(extra: dict | None = None) -> dict:
+    return {c: {**SCALE, 8: "refused", 9: "Not asked", **(extra or {})} for c in ITEMS}
+
+
+@pytest.mark.parametrize("text", ["refused", "Refused.", "DON'T KNOW", "don’t know", "Don't know / refused",
+                                  "Prefer not to say", "not applicable", "No answer", "Not asked", "skipped",
+                                  "missing", "Refused or don't know"])
+def test_the_declared_words_of_non_answers(text):
+    assert says_no_answer(text)
+
+
+@pytest.mark.parametrize("text", ["never", "always", "Not at all", "Nearly every day", "missing my bus", "refuse bins",
+                                  "Don't agree", "know", "", "Other"])
+def test_answers_are_not_non_answers(text):
+    assert not says_no_answer(text)
+
+
+def test_stata_codes_labelled_as_non_answers_are_read_as_missing_and_said_first(tmp_path, answers, coded):
+    import pyreadstat
+
+    path = tmp_path / "riders.dta"
+    pyreadstat.write_dta(coded, str(path), variable_value_labels=_labels())
+    result = cfa_tool.fit(MODEL, path)
+    # never a category: the answers per category hold 0 to 3 only
+    assert all(tuple(v for v, _ in cats) == (0.0, 1.0, 2.0, 3.0) for cats in result.groups[0].data.categories)
+    counted = dict(zip(ITEMS, result.groups[0].data.categories))
+    assert sum(n for _, n in counted["c2"]) == int(coded["c2"].isin([0, 1, 2, 3]).sum()) == 400 - 3
+    same = cfa_tool.fit(MODEL, _blanked(answers))
+    assert result.fit.chi_square == pytest.approx(same.fit.chi_square, rel=1e-10)
+    first = result.problems[0]
+    assert first.kind is ProblemKind.VALUES_READ_AS_MISSING
+    assert first.explanation == (
+        "7 cells of the items in riders.dta hold values that the file labels as no answer, read as missing, not as "
+        "answers: 8 'refused' (3 cells: c2 1, s1 1, s3 1); 9 'Not asked' (4 cells: c2 2, c3 1, s2 1).")
+    assert first.advice.endswith("To analyse one as an answer, give its code another value label, in a copy of the file.")
+    assert result.admissible
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    assert "marks as no answer (by their value labels" in methods_paragraph(result)
+    # the check says so as the fit does
+    checked = cfa_tool.check(MODEL, path)
+    assert checked.problems[0].explanation == first.explanation
+    from cfa_tool.reporting.workflow_tables import check_report
+
+    coverage = check_report(checked).tables[0]  # read as missing, so not 'counted as an answer here'
+    assert coverage.key == "coverage" and coverage.note is None
+
+
+def test_a_code_given_as_missing_is_not_named_again(tmp_path, coded):
+    import pyreadstat
+
+    path = tmp_path / "riders.dta"
+    pyreadstat.write_dta(coded, str(path), variable_value_labels=_labels())
+    result = cfa_tool.check(MODEL, path, missing_codes=[8])
+    assert result.problems[0].explanation.endswith(": 9 'Not asked' (4 cells: c2 2, c3 1, s2 1).")
+
+
+def test_spss_user_missing_values_are_honoured_and_said(tmp_path, answers, coded):
+    import pyreadstat
+
+    path = tmp_path / "riders.sav"
+    pyreadstat.write_sav(coded, str(path), variable_value_labels={c: SCALE for c in ITEMS},
+                         missing_ranges={c: [8, 9] for c in ITEMS})
+    result = cfa_tool.fit(MODEL, path)
+    assert result.fit.chi_square == pytest.approx(cfa_tool.fit(MODEL, _blanked(answers)).fit.chi_square, rel=1e-10)
+    assert result.problems[0].explanation.startswith(
+        "7 cells of the items in riders.sav hold values that the file declares as missing values, read as missing, "
+        "not as answers: 8 (3 cells: c2 1, s1 1, s3 1); 9 (4 cells: c2 2, c3 1, s2 1)")
+
+
+def test_stata_missing_values_of_their_own_kind_are_said(tmp_path, answers):
+    # Stata's .a to .z are missing by the format itself: read as missing, as before, and now named with labels
+    import pyreadstat
+
+    data = answers.astype(object)
+    data.loc[3, "c2"], data.loc[40, "s1"], data.loc[41, "s1"] = "a", "b", "b"
+    path = tmp_path / "riders.dta"
+    pyreadstat.write_dta(data, str(path), missing_user_values={"c2": ["a"], "s1": ["b"]},
+                         variable_value_labels={"c2": {**SCALE, "a": "refused"}, "s1": {**SCALE, "b": "not asked"}})
+    first = cfa_tool.check(MODEL, path).problems[0]
+    assert first.explanation == (
+        "3 cells of the items in riders.dta hold values that the file declares as missing values, read as missing, "
+        "not as answers: .a 'refused' (1 cell: c2 1); .b 'not asked' (2 cells: s1 2).")
+    assert first.advice.endswith("remove its declaration as a missing value, in a copy of the file.")
+
+
+def test_a_labelled_code_outside_a_declared_scale_gets_missing_codes_never_a_wider_scale(tmp_path, answers):
+    import pyreadstat
+
+    data = answers.copy()
+    data.loc[[10, 11], "c3"] = 7  # labelled 'other', not a word of no answer: still not on the 0 to 3 scale
+    path = tmp_path / "riders.dta"
+    pyreadstat.write_dta(data, str(path), variable_value_labels=_labels({7: "other"}))
+    assert refusal(MODEL + "reversed c1 on 0 to 3\n", path) == (
+        "riders.dta holds answers outside the scale 0 to 3 declared here: 'c3' 7 'other' (2 cells: data rows 11, 12); "
+        "if they are typing errors or codes for no answer, give --missing-codes 7 (or correct them in a copy of the "
+        "file)")
+
+
+def test_an_answer_outside_a_declared_scale_is_refused_in_every_item_it_covers(answers):
+    # the trial's -1 and 4: an error on the partners of a reversed item as on the item itself (it was a note, and
+    # the values became categories whose threshold steps no longer lined up across items)
+    data = answers.copy()
+    data.loc[140, "c1"], data.loc[5, "c3"] = -1, 4
+    assert refusal(MODEL + "reversed c2 on 0 to 3\n", data) == (
+        "<data frame> holds answers outside the scale 0 to 3 declared here: 'c1' -1 (data row 141); 'c3' 4 (data row "
+        "6); if they are typing errors or codes for no answer, give --missing-codes -1,4 (or correct them in a copy "
+        "of the file)")
+    assert cfa_tool.check(MODEL + "reversed c2 on 0 to 3\n", data, missing_codes=[-1, 4]).complete == len(data) - 2
+
+
+def test_text_cells_that_say_no_answer_are_read_as_missing_and_codes_then_apply(tmp_path, answers):
+    # 'refused' made the column text, so --missing-codes 9 did not apply and the advice to give it looped (U10)
+    text = answers.astype(int).astype(str)
+    text.loc[3, "c2"], text.loc[40, "s1"], text.loc[77, "s3"] = "refused", "Don't know", "refused"
+    text.loc[5, "c2"] = "9"
+    path = tmp_path / "riders.csv"
+    text.to_csv(path, index=False)
+    result = cfa_tool.check(MODEL + "reversed c2 on 0 to 3\n", path, missing_codes=[9])
+    assert result.problems[0].explanation == (
+        "3 cells of the items in riders.csv hold values that the file writes as no answer, read as missing, not as "
+        "answers: 'refused' (2 cells: c2 1, s3 1); 'Don't know' (1 cell: s1 1).")
+    assert result.complete == len(answers) - 4
+    # other text is named where it is (column, data row, value), whatever codes are given
+    text.loc[12, "c1"] = "n/k"
+    text.to_csv(path, index=False)
+    with pytest.raises(DataError, match=r"column 'c1' is used as an indicator but holds text \('n/k' in data row 13\)"):
+        cfa_tool.check(MODEL + "reversed c2 on 0 to 3\n", path, missing_codes=[9])
+
+
+def test_an_excel_cell_that_says_no_answer_is_read_as_missing(tmp_path, answers):
+    data = answers.astype(object)
+    data.loc[40, "s1"] = "Refused"
+    path = tmp_path / "riders.xlsx"
+    data.to_excel(path, index=False)
+    result = cfa_tool.check(MODEL, path)
+    assert result.problems[0].explanation.endswith("'Refused' (1 cell: s1 1).")
+
+
+def test_codes_read_as_value_labels_are_said_only_for_the_group_column(tmp_path, answers):
+    # the note named answer items of other models, changed with the model, and did not say what it meant (U14)
+    import pyreadstat
+
+    data = answers.copy()
+    data["line"] = np.where(np.arange(len(data)) % 2 == 0, 1.0, 2.0)
+    data["c1_later"] = data["c1"]  # a later wave's item, labelled as every item is
+    path = tmp_path / "riders.sav"
+    labels = {**{c: SCALE for c in ITEMS + ["c1_later"]}, "line": {1: "Harbour line", 2: "Ridge line"}}
+    pyreadstat.write_sav(data, str(path), variable_value_labels=labels)
+    plain = cfa_tool.check(MODEL, path)
+    assert not [n for n in plain.notes if "value labels" in n]
+    grouped = cfa_tool.check(MODEL, path, group="line")
+    assert [n for n in grouped.notes if "value labels" in n] == [
+        "the group column 'line' holds codes with value labels in the data file; its groups are named by those "
+        "labels (1 as 'Harbour line', 2 as 'Ridge line')"]
+
+
+def test_an_answer_given_once_at_the_end_of_the_scale_gets_missing_codes_first(answers):
+    from cfa_tool.reporting.tables import category_table
+
+    data = answers.copy()
+    data.loc[140, "c1"] = -1
+    table = category_table(cfa_tool.fit(MODEL, data))
+    assert "Answered by one row only: c1 -1" in table.note
+    assert "if -1 is a typing error or a code for no answer, give --missing-codes -1;" in table.note
