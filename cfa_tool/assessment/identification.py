@@ -5,11 +5,11 @@ the empirical check of McDonald & Krane 1979)."""
 from __future__ import annotations
 
 import numpy as np
-from scipy.linalg import lapack
 
 from cfa_tool.errors import EstimationError, ModelError
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.parameters import ParameterTable
+from cfa_tool.numerics.linalg import ScaledFactor, scaled_factor
 
 
 def check_counting_rule(spec: Spec, table: ParameterTable) -> None:
@@ -47,14 +47,16 @@ def _scale_shared_with_first_group(table: ParameterTable, j: int, g: int) -> boo
     return any(par.terms in first for par in table.parameters if par.group == g and par.matrix in ("L", "B") and par.col == j and par.free)
 
 
-def check_information_rank(information: np.ndarray, labels: tuple[str, ...]) -> None:
-    """Raise if the information matrix is (numerically) singular, naming the parameters involved."""
+def check_information_rank(information: np.ndarray, labels: tuple[str, ...], factor: ScaledFactor | None = None) -> None:
+    """Raise if the information matrix is (numerically) singular, naming the parameters involved; ``factor``:
+    :func:`~cfa_tool.numerics.linalg.scaled_factor` of it when the caller has made it (the standard errors and the
+    score tests read the same factor)."""
     if information.size == 0:
+        return
+    if _clearly_full_rank(scaled_factor(information) if factor is None else factor):
         return
     inv_scale = 1.0 / np.sqrt(np.maximum(information.diagonal(), 1e-300))
     normalised = information * (inv_scale[:, None] * inv_scale)
-    if _clearly_full_rank(normalised):
-        return
     vals = np.linalg.eigvalsh(normalised)  # eigenvalues only: the vectors are needed only to name a culprit
     if vals[0] > 1e-9 * max(vals[-1], 1.0):
         return
@@ -67,16 +69,13 @@ def check_information_rank(information: np.ndarray, labels: tuple[str, ...]) -> 
     )
 
 
-def _clearly_full_rank(normalised: np.ndarray) -> bool:
-    """Whether the smallest eigenvalue of a matrix with unit diagonal surely exceeds 1e-9 times the largest (and
-    1e-9), the test of :func:`check_information_rank`, shown by a Cholesky factor N = L L' at a third of the cost of
-    the eigenvalues: lambda_min = 1 / ||L^-1||_2^2 >= 1 / ||L^-1||_F^2, and lambda_max <= trace N = q (Golub & Van
-    Loan 2013, sec. 2.3).  False when this does not show it; the eigenvalues then decide."""
-    factor, info = lapack.dpotrf(normalised, lower=1, clean=1)
-    if info != 0:
+def _clearly_full_rank(factor: ScaledFactor | None) -> bool:
+    """Whether the smallest eigenvalue of the information scaled to unit diagonal, N = L L', surely exceeds 1e-9 times
+    the largest (and 1e-9), the test of :func:`check_information_rank`, shown by its Cholesky factor at a third of the
+    cost of the eigenvalues: lambda_min = 1 / ||L^-1||_2^2 >= 1 / ||L^-1||_F^2, and lambda_max <= trace N = q (Golub &
+    Van Loan 2013, sec. 2.3).  False when this does not show it (or N has no Cholesky factor); the eigenvalues then
+    decide."""
+    if factor is None:
         return False
-    inverse, info = lapack.dtrtri(factor, lower=1)
-    if info != 0:
-        return False
-    bound = float(np.vdot(inverse, inverse))  # ||L^-1||_F^2 >= 1 / lambda_min
-    return np.isfinite(bound) and 1.0 / bound > 1e-9 * max(len(normalised), 1)
+    bound = float(np.vdot(factor.inverse, factor.inverse))  # ||L^-1||_F^2 >= 1 / lambda_min
+    return np.isfinite(bound) and 1.0 / bound > 1e-9 * max(len(factor.inverse), 1)

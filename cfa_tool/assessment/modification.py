@@ -24,7 +24,7 @@ from itertools import chain
 import numpy as np
 
 from cfa_tool.assessment.standardized import Standardization, standardization, standardize_entries
-from cfa_tool.numerics.linalg import inverse_quadratic_forms, scaled_inverse
+from cfa_tool.numerics.linalg import ScaledFactor, inverse_quadratic_forms, scaled_inverse
 from cfa_tool.estimation.objective import Objective
 from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import MATRIX_CODES, ParameterTable
@@ -187,10 +187,13 @@ def candidate_layout(cands: list[Candidate], p: int, m: int) -> CandidateLayout:
 
 
 def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidates: list[list[Candidate]],
-                layouts: list[CandidateLayout] | None = None, mats: list | None = None) -> ModificationIndices:
+                layouts: list[CandidateLayout] | None = None, mats: list | None = None,
+                factor: ScaledFactor | None = None) -> ModificationIndices:
     """MI and EPC for each group's candidate entries (``candidates[g]``; ``layouts[g]`` their
     :func:`candidate_layout`, made here when not given); ``mats``: each group's model matrices at theta when the
-    caller has them (their implied moments computed once)."""
+    caller has them (their implied moments computed once); ``factor``: with complete data, the
+    :func:`~cfa_tool.numerics.linalg.scaled_factor` of the information at theta when the caller has made it (for the
+    rank check and the standard errors)."""
     table = model.table
     if layouts is None:
         layouts = [candidate_layout(c, model.p, model.m) for c in candidates]
@@ -203,7 +206,8 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
                  for g, weight in enumerate(likelihood.weights) if candidates[g]]
     else:
         H_tt, parts = _chunked_blocks(model, theta, likelihood, candidates, layouts, mats)
-    forms = inverse_quadratic_forms(H_tt)  # one factorisation for every group and chunk
+    # one factorisation for every group and chunk (the caller's, for complete data)
+    forms = inverse_quadratic_forms(H_tt, factor if hasattr(likelihood, "candidate_scores") else None)
     n = likelihood.n_total
     columns = []
     for g, weight, mats, blocks in parts:
@@ -264,14 +268,16 @@ def _chunked_blocks(model: StructuredModel, theta: np.ndarray, likelihood, candi
 
 
 def modification_indices(model: StructuredModel, theta: np.ndarray, likelihood: Objective,
-                         exogenous: tuple[str, ...], mats: list | None = None) -> ModificationIndices:
-    """Score tests of every zero parameter that could be freed (``mats``: as :func:`score_tests` takes them)."""
+                         exogenous: tuple[str, ...], mats: list | None = None,
+                         factor: ScaledFactor | None = None) -> ModificationIndices:
+    """Score tests of every zero parameter that could be freed (``mats`` and ``factor``: as :func:`score_tests` takes
+    them)."""
     table = model.table
     key = ("modification candidates", exogenous)  # fixed by the model: built at its first fit, kept for its refits
     if key not in model.derived:
         candidates = [candidate_entries(table, exogenous, g) for g in range(table.n_groups)]
         model.derived[key] = candidates, [candidate_layout(c, model.p, model.m) for c in candidates]
-    return score_tests(model, theta, likelihood, *model.derived[key], mats=mats)
+    return score_tests(model, theta, likelihood, *model.derived[key], mats=mats, factor=factor)
 
 
 def equality_score_tests(model: StructuredModel, theta: np.ndarray, likelihood: Objective,

@@ -152,23 +152,22 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     ``not_traits``: method factors (wording, acquiescence), which get no coefficient, take no part in the
     Fornell-Larcker comparison and no HTMT pair (their loadings describe a way of answering, not a trait)."""
     p, m = mats.L.shape
-    L, G = mats.L, mats.L @ mats.A
+    L, G = mats.L, mats.G
     phi = mats.latent_covariance()
     sigma = mats.implied_covariance()
     theta = mats.T
     # every factor at once: columns of keys K (item i's key for factor j, 0 for items f does not reach) and of
     # K restricted to each first-order factor's own items; the sums of the module docstring are then columns of
     # K' X K and K' x for the matrices X and vectors x involved
-    member = (np.abs(G) > 1e-12) | (np.abs(L) > 0)
     direct = np.abs(L) > 0
+    member = (np.abs(G) > 1e-12) | direct
     higher = np.abs(mats.B).sum(axis=0) > 0
-    signs = np.where(G < 0, -1.0, 1.0)
     K, direction, split = item_keys(G, member, observed, declared)
     if declared is None:
         against = np.zeros((p, m), dtype=bool)
     else:
         # contradictions are reported once, for the factor the items load on directly
-        against = member & (K * signs != direction) & (G != 0) & ~higher
+        against = member & (K * np.where(G < 0, -1.0, 1.0) != direction) & (G != 0) & ~higher
     totals = np.einsum("ij,ij->j", K, sigma @ K)
     omega = np.einsum("ij,ij->j", K, G) ** 2 * phi.diagonal() / totals
     omega_total = 1.0 - np.einsum("ij,ij->j", K, theta @ K) / totals
@@ -184,6 +183,14 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         cr = keyed_sum**2 / (keyed_sum**2 + err)
         ave = lam_squares / (lam_squares + err)
     counts = direct.sum(axis=0)
+    first_order = [j for j in range(m) if member[:, j].any() and latent[j] not in not_traits and not higher[j]]
+    # per factor, as lists read in the loop below: the largest |correlation| with another first-order factor
+    # (-inf with none) and whether sqrt(AVE) exceeds it (Fornell-Larcker)
+    others = np.zeros(m, dtype=bool)
+    others[first_order] = True
+    largest_a = np.where(others[None, :] & ~np.eye(m, dtype=bool), np.abs(corr_lat), -np.inf).max(axis=1)
+    with np.errstate(invalid="ignore"):  # NaN for higher-order factors (and a negative AVE): no comparison holds
+        largest_l, holds_l = largest_a.tolist(), (np.sqrt(ave) > largest_a).tolist()
     if S is not None:
         SK = S @ Kd
         keyed_totals = np.einsum("ij,ij->j", Kd, SK)  # k'S k over each factor's own items
@@ -191,10 +198,17 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         with np.errstate(divide="ignore", invalid="ignore"):
             alpha = np.where(counts > 1, counts / np.maximum(counts - 1, 1) * (1.0 - direct.T @ s_ii / keyed_totals),
                              np.nan)
-    first_order = [j for j in range(m) if member[:, j].any() and latent[j] not in not_traits and not higher[j]]
+            # the keyed sum's SD and each item's corrected item-total correlation (_sum_score_spread), every factor
+            sd_l = np.sqrt(keyed_totals * (n_obs / (n_obs - 1) if n_obs and n_obs > 1 else 1.0)).tolist()
+            with_rest = K * SK - s_ii[:, None]  # cov(k_i x_i, T - k_i x_i) with T the keyed sum
+            rest = keyed_totals - 2.0 * K * SK + s_ii[:, None]  # var(T - k_i x_i)
+            item_total_l = (with_rest / np.sqrt(np.maximum(s_ii[:, None] * rest, 1e-300))).T.tolist()
+        alpha_l, means_l = alpha.tolist(), means.tolist() if means is not None else None
     keying = Keying.SIGNS if declared is None else Keying.DECLARED
-    member_l = [column.nonzero()[0].tolist() for column in member.T]  # each factor's items
+    member_l, direct_l = [c.nonzero()[0].tolist() for c in member.T], [c.nonzero()[0].tolist() for c in direct.T]
     negative, against_l = (K < 0).tolist(), against.tolist()
+    omega_l, omega_total_l, cr_l, ave_l = omega.tolist(), omega_total.tolist(), cr.tolist(), ave.tolist()
+    turned_l, tied_l, counts_l, higher_l = (direction < 0).tolist(), split.tolist(), counts.tolist(), higher.tolist()
     results = []
     for j, name in enumerate(latent):
         items = member_l[j]
@@ -203,38 +217,34 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         names = tuple(observed[i] for i in items)
         reversed_items = tuple(observed[i] for i in items if negative[i][j])
         against_items = tuple(observed[i] for i in items if against_l[i][j])
-        turned, tied = bool(direction[j] < 0), bool(split[j])
-        if higher[j]:
-            results.append(FactorReliability(name, names, "higher-order", float(omega[j]), float(omega_total[j]),
-                                             float(omega[j]), None, None, None, None, None, reversed_items, keying,
-                                             None, None, (), against_items, points_against=turned,
-                                             evenly_split=tied))
+        turned, tied = turned_l[j], tied_l[j]
+        if higher_l[j]:
+            results.append(FactorReliability(name, names, "higher-order", omega_l[j], omega_total_l[j], omega_l[j],
+                                             None, None, None, None, None, reversed_items, keying, None, None, (),
+                                             against_items, points_against=turned, evenly_split=tied))
             continue
         alpha_j = mean = sd = None
         item_total: tuple[float, ...] = ()
         if S is not None:
-            own_items = direct[:, j].nonzero()[0]
-            own_k = K[own_items, j]
-            alpha_j = float(alpha[j])
+            own_items = direct_l[j]
+            alpha_j = alpha_l[j]
             if sum_scores:
-                sd, item_total = _sum_score_spread(float(keyed_totals[j]), own_k, SK[own_items, j], s_ii[own_items],
-                                                   n_obs)
+                sd = sd_l[j]
+                item_total = tuple(item_total_l[j][i] for i in own_items) if len(own_items) > 1 else ()
             if sum_scores and means is not None:
-                mean = _sum_score_mean(means[own_items], own_k, [observed[i] for i in own_items], declared)
-        largest = holds = None
-        if counts[j] == 1:  # one item: its coefficients only restate the error variance the model had to fix
+                mean = _sum_score_mean([means_l[i] for i in own_items], [negative[i][j] for i in own_items],
+                                       [observed[i] for i in own_items], declared)
+        if counts_l[j] == 1:  # one item: its coefficients only restate the error variance the model had to fix
             results.append(FactorReliability(name, names, "first-order", float("nan"), float("nan"), None, None, None,
                                              None, None, None, reversed_items, keying, mean, sd, item_total,
                                              against_items))
             continue
-        others = [k for k in first_order if k != j]
-        if others:
-            largest = float(np.abs(corr_lat[j, others]).max())
-            holds = bool(np.sqrt(ave[j]) > largest)
-        results.append(FactorReliability(name, names, "first-order", float(omega[j]), float(omega_total[j]), None,
-                                         float(cr[j]), float(ave[j]), alpha_j, largest, holds, reversed_items, keying,
-                                         mean, sd, item_total, against_items, points_against=turned,
-                                         evenly_split=tied))
+        largest = holds = None
+        if len(first_order) > (j in first_order):  # another first-order factor to compare with
+            largest, holds = largest_l[j], holds_l[j]
+        results.append(FactorReliability(name, names, "first-order", omega_l[j], omega_total_l[j], None, cr_l[j],
+                                         ave_l[j], alpha_j, largest, holds, reversed_items, keying, mean, sd,
+                                         item_total, against_items, points_against=turned, evenly_split=tied))
     htmt = []
     if S is not None:
         sd_items = np.sqrt(s_ii)
@@ -261,28 +271,17 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     return results, htmt
 
 
-def _sum_score_spread(total: float, keys: np.ndarray, Sk: np.ndarray, s_ii: np.ndarray,
-                      n_obs: int | None) -> tuple[float, tuple[float, ...]]:
-    """(standard deviation of the keyed sum, corrected item-total correlations) of one factor's own items from
-    their keyed total variance k'S k, keys k, S k and variances s_ii."""
-    sd = float(np.sqrt(total * (n_obs / (n_obs - 1) if n_obs and n_obs > 1 else 1.0)))
-    if len(keys) < 2:
-        return sd, ()
-    with_rest = keys * Sk - s_ii  # cov(k_i x_i, T - k_i x_i) with T the keyed sum
-    rest = total - 2.0 * keys * Sk + s_ii  # var(T - k_i x_i)
-    return sd, tuple((with_rest / np.sqrt(np.maximum(s_ii * rest, 1e-300))).tolist())
-
-
-def _sum_score_mean(means: np.ndarray, keys: np.ndarray, names: list[str],
+def _sum_score_mean(means: list[float], reversed_: list[bool], names: list[str],
                     declared: dict[str, tuple[float, float]] | None) -> float | None:
-    """Mean of the keyed sum; None when an item is reversed without a declared scale range."""
+    """Mean of the keyed sum of items with these means (a reversed item's answers counting as minimum + maximum - x);
+    None when an item is reversed without a declared scale range."""
     total = 0.0
-    for mean, key, name in zip(means, keys, names):
-        if key > 0:
-            total += float(mean)
+    for mean, turned, name in zip(means, reversed_, names):
+        if not turned:
+            total += mean
         elif declared is not None and name in declared:
             low, high = declared[name]
-            total += low + high - float(mean)
+            total += low + high - mean
         else:
             return None
     return total

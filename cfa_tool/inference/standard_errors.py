@@ -14,7 +14,7 @@ from typing import Callable
 import numpy as np
 from cfa_tool.numerics import distributions as dist
 
-from cfa_tool.numerics.linalg import difference_hessian, scaled_inverse
+from cfa_tool.numerics.linalg import ScaledFactor, difference_hessian, scaled_inverse
 
 
 @dataclass(frozen=True)
@@ -32,9 +32,10 @@ def observed_information(gradient: Callable[[np.ndarray], np.ndarray], theta: np
     return difference_hessian(gradient, theta, central)
 
 
-def parameter_covariance(information: np.ndarray, n_obs: int) -> np.ndarray:
-    """(2/N) H^-1, inverted after scaling H to unit diagonal so parameters in very different units stay accurate."""
-    return 2.0 / n_obs * scaled_inverse(information)
+def parameter_covariance(information: np.ndarray, n_obs: int, factor: ScaledFactor | None = None) -> np.ndarray:
+    """(2/N) H^-1, inverted after scaling H to unit diagonal so parameters in very different units stay accurate
+    (``factor``: :func:`~cfa_tool.numerics.linalg.scaled_factor` of H when the caller has made it)."""
+    return 2.0 / n_obs * scaled_inverse(information, factor)
 
 
 def wald_inference(values: np.ndarray, J: np.ndarray, cov_theta: np.ndarray, level: float = 0.95) -> Inference:

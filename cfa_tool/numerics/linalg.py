@@ -12,6 +12,8 @@ not badly conditioned; scaling it to unit diagonal first removes that.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 from scipy.linalg import blas, lapack  # direct LAPACK calls: numpy.linalg's checks cost more than small factorisations
 
@@ -68,22 +70,50 @@ def scaled_solve(H: np.ndarray, b: np.ndarray, positive_definite: bool = False) 
     return dd * np.linalg.solve(scaled, dd * b)
 
 
-def inverse_quadratic_forms(H: np.ndarray):
+@dataclass(frozen=True)
+class ScaledFactor:
+    """A positive-definite H factorised once for everything read from it: with D = diag(``scales``) scaling H to
+    unit diagonal, D H D = L L' (Cholesky) and ``inverse`` = L^-1 (lower triangular).  Then H^-1 = D L^-T L^-1 D
+    (the LAPACK route of dpotri: dtrtri, then dlauum), b' H^-1 b = ||L^-1 D b||^2, and ||L^-1||_F bounds the
+    smallest eigenvalue of D H D (Golub & Van Loan 2013, sec. 2.3; the rank check of the information)."""
+
+    scales: np.ndarray
+    inverse: np.ndarray
+
+    def inverse_matrix(self) -> np.ndarray:
+        """H^-1, exactly symmetric: what :func:`scaled_inverse` gives."""
+        lower, info = lapack.dlauum(self.inverse, lower=1)  # L^-T L^-1 in the lower triangle
+        if info != 0:
+            raise np.linalg.LinAlgError("the triangular product failed")
+        inverse = lower + lower.T  # the factor's upper triangle is zero
+        inverse.ravel()[:: len(lower) + 1] *= 0.5
+        return inverse * (self.scales[:, None] * self.scales)
+
+
+def scaled_factor(H: np.ndarray) -> ScaledFactor | None:
+    """:class:`ScaledFactor` of H, or None when the scaled H is not positive definite (or holds NaN)."""
+    d = _scales(H)
+    found = cholesky_log_det(H * (d[:, None] * d))
+    if found is None:
+        return None
+    inverse, info = lapack.dtrtri(found[0], lower=1)
+    return ScaledFactor(d, inverse) if info == 0 else None
+
+
+def inverse_quadratic_forms(H: np.ndarray, factor: ScaledFactor | None = None):
     """A function of B giving b_k' H^-1 b_k for every column b_k of B, from one Cholesky factorisation
-    of the Jacobi-scaled H: with D H D = L L', H = F F' for F = D^-1 L, and the forms are the squared column
-    norms of F^-1 B (one triangular solve, B not scaled first); the general solve when H is not positive definite.
+    of the Jacobi-scaled H (``factor``, :func:`scaled_factor` of H, when the caller has made it): H = F F' for
+    F = D^-1 L, and the forms are the squared column norms of F^-1 B = L^-1 D B (one triangular product with
+    L^-1 D, made once; B not scaled first); the general solve when H is not positive definite.
     ``forms(B, overwrite=True)`` may overwrite B (a Fortran-ordered B, such as the transpose of a C-ordered
-    array, is then solved in place)."""
+    array, is then multiplied in place)."""
     if H.size == 0:
         return lambda B, overwrite=False: np.zeros(B.shape[1])
-    d = _scales(H)
-    factor, info = lapack.dpotrf(H * (d[:, None] * d), lower=1, clean=1)
-    if info != 0:
+    if factor is None:
+        factor = scaled_factor(H)
+    if factor is None:
         return lambda B, overwrite=False: np.einsum("ij,ij->j", B, scaled_solve(H, B))
-    factor /= d[:, None]
-    inverse, info = lapack.dtrtri(factor, lower=1)  # F^-1 once: a triangular product per B is faster than a solve
-    if info != 0:
-        return lambda B, overwrite=False: np.einsum("ij,ij->j", B, scaled_solve(H, B))
+    inverse = factor.inverse * factor.scales  # F^-1 = L^-1 D: a triangular product per B is faster than a solve
 
     def forms(B: np.ndarray, overwrite: bool = False) -> np.ndarray:
         X = blas.dtrmm(1.0, inverse, B, lower=1, overwrite_b=int(overwrite))
@@ -92,11 +122,15 @@ def inverse_quadratic_forms(H: np.ndarray):
     return forms
 
 
-def scaled_inverse(H: np.ndarray) -> np.ndarray:
+def scaled_inverse(H: np.ndarray, factor: ScaledFactor | None = None) -> np.ndarray:
+    """H^-1 after scaling H to unit diagonal (``factor``: :func:`scaled_factor` of H when the caller has it)."""
+    if factor is None:
+        factor = scaled_factor(H)
+    if factor is not None:
+        return factor.inverse_matrix()
     d = _scales(H)
     dd = d[:, None] * d
-    found = spd_inverse(H * dd)
-    return (found[0] if found is not None else np.linalg.inv(H * dd)) * dd
+    return np.linalg.inv(H * dd) * dd
 
 
 def difference_hessian(gradient, theta: np.ndarray, central: bool = True, base: np.ndarray | None = None,

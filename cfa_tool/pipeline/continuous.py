@@ -40,6 +40,7 @@ from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
+from cfa_tool.numerics.linalg import scaled_factor
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
@@ -237,7 +238,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                                          for g, gm in enumerate(likelihood.groups)])
         evaluation = likelihood.evaluate(theta)
         information = evaluation.information
-        check_information_rank(information, table.free_labels)
+        factor = scaled_factor(information)  # read by the rank check, the standard errors and the score tests
+        check_information_rank(information, table.free_labels, factor)
         per_group = []
         for g, gm in enumerate(likelihood.groups):
             dev = gm.mean - mats[g].implied_mean() if means else None
@@ -267,10 +269,11 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 gradient = getattr(likelihood, "gradient", None) or (lambda t: likelihood.evaluate(t).gradient)
                 information = closed_form if closed_form is not None else observed_information(
                     gradient, theta, central=likelihood.complete_data)
-            cov_theta = parameter_covariance(information, n_total)
+            cov_theta = parameter_covariance(information, n_total,
+                                             factor if information is evaluation.information else None)
         inference = wald_inference(values, model.J, cov_theta)
         if options.modification_indices:
-            mis = modification_indices(model, theta, likelihood, exogenous_factors(spec), mats)
+            mis = modification_indices(model, theta, likelihood, exogenous_factors(spec), mats, factor)
     else:
         # a model that is not identified often shows itself by not converging: say so when it is the cause
         evaluation = likelihood.evaluate(theta)
