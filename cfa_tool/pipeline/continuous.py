@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 from functools import lru_cache
+from typing import TYPE_CHECKING
 
 import numpy as np
 
@@ -26,12 +27,8 @@ from cfa_tool.assessment.standardized import r_squared, standardization, standar
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, moments_with_gaps
 from cfa_tool.errors import CfaError, OptionError
-from cfa_tool.estimation.fiml import MissingDataLikelihood, fiml_baseline, fiml_log_likelihood
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
-from cfa_tool.data.patterns import pattern_data
-from cfa_tool.estimation.stacked import fit_stacked, stackable
 from cfa_tool.estimation.strategy import Alternative, search
-from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
 from cfa_tool.inference.standard_errors import observed_information, parameter_covariance, wald_inference
 from cfa_tool.language.checks import exogenous_factors
 from cfa_tool.language.spec import Spec
@@ -44,6 +41,8 @@ from cfa_tool.numerics.linalg import scaled_factor
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
+if TYPE_CHECKING:  # the full-information likelihood is imported by the fits that use it
+    from cfa_tool.estimation.fiml import MissingDataLikelihood
 
 
 LISTWISE_WARNING_SHARE = 0.05  # more rows lost than this to listwise deletion: a prominent warning (common practice)
@@ -130,6 +129,8 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
 
     def likelihood_of(model: StructuredModel) -> NormalLikelihood | MissingDataLikelihood:
         if fiml:
+            from cfa_tool.estimation.fiml import MissingDataLikelihood
+
             return MissingDataLikelihood(model, *rows)
         return NormalLikelihood(model, moments)
 
@@ -160,6 +161,8 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
 def full_information_data(moments: list[GroupMoments]) -> tuple[list, list, list[GroupMoments]]:
     """What a full-information discrepancy takes of each group's data, whatever the model: the rows by
     missing-data pattern, the EM (saturated) means and covariances, and those as the groups' summaries."""
+    from cfa_tool.data.patterns import pattern_data
+
     patterns = [pattern_data(gm.rows, gm.design.weights if gm.design is not None else None) for gm in moments]
     saturated = [(gm.mean, gm.covariance) for gm in moments]
     summaries = [GroupMoments(gm.covariance, gm.mean, gm.n_obs, design=gm.design) for gm in moments]
@@ -169,6 +172,8 @@ def full_information_data(moments: list[GroupMoments]) -> tuple[list, list, list
 def full_information_likelihood(model: StructuredModel, moments: list[GroupMoments]) -> MissingDataLikelihood:
     """The full-information discrepancy of ``model`` for each group's rows, ``moments`` holding the rows and
     their EM (saturated) means and covariances."""
+    from cfa_tool.estimation.fiml import MissingDataLikelihood
+
     return MissingDataLikelihood(model, *full_information_data(moments))
 
 
@@ -247,10 +252,14 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         if likelihood.complete_data:
             base_chi, base_df, loglik = normal_theory_parts(per_group)
         else:
+            from cfa_tool.estimation.fiml import fiml_baseline, fiml_log_likelihood
+
             (base_chi, base_df), loglik = fiml_baseline(likelihood), fiml_log_likelihood(likelihood, theta)
         fit = fit_indices(chi_square=n_total * est.value, df=likelihood.n_statistics - table.n_free,
                           baseline_chi_square=base_chi, baseline_df=base_df, n_obs=n_total, n_free=table.n_free,
                           srmr=overall_srmr, groups=table.n_groups, log_likelihood=loglik)
+        if robust_wanted or yuan_bentler:
+            from cfa_tool.inference.robust import baseline_trace, robust_fit, robust_parts
         if robust_wanted:
             cov_theta, trace_ug = robust_parts(model, theta, likelihood)
             robust = robust_fit(fit.chi_square, fit.df, trace_ug, fit.baseline_chi_square, fit.baseline_df,
@@ -450,6 +459,8 @@ def replicate_fits(spec: Spec, samples: list[SampleMoments], start: np.ndarray |
     options = FitOptions(max_iterations=max_iterations, diagnostics=False,
                          missing=MissingData.FULL_INFORMATION if full_information else None)
     table, model = model_structure(spec, None, full_information)
+    from cfa_tool.estimation.stacked import fit_stacked, stackable
+
     with blas_threads_for(len(spec.observed_names)):
         if (not samples or start is None or len(start) != table.n_free or not stackable(model)
                 or full_information):
@@ -482,6 +493,8 @@ def _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_w
         if standard_errors and information is None:
             information = observed_information(est.likelihood.gradient, est.theta, central=False)
         information = information[None] if standard_errors else None
+        from cfa_tool.estimation.fiml import fiml_baseline, fiml_log_likelihood
+
         baseline = fiml_baseline(est.likelihood) + (fiml_log_likelihood(est.likelihood, est.theta),)
     else:
         information = est.likelihood.evaluate(est.theta).information[None] if standard_errors else None

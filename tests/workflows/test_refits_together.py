@@ -51,11 +51,11 @@ def test_cutoffs_do_not_depend_on_batches_or_workers(monkeypatch, hs_data):
 def test_power_simulation_counts_what_one_fit_at_a_time_counts(monkeypatch):
     """Small samples: replications that fail in the stacked search are refitted alone, so the count of
     converged replications and every summary equal those of one fit at a time."""
-    from cfa_tool.pipeline import continuous
+    from cfa_tool.estimation import stacked  # imported by replicate_fits when it runs
 
     spec = parse_model(POPULATION)
     together = montecarlo_module.monte_carlo_power(spec, 25, replications=40, seed=12, workers=1)
-    monkeypatch.setattr(continuous, "stackable", lambda model: False)
+    monkeypatch.setattr(stacked, "stackable", lambda model: False)
     alone = montecarlo_module.monte_carlo_power(spec, 25, replications=40, seed=12, workers=1)
     assert together.converged == alone.converged < 40  # the case has failures to count
     for a, b in zip(together.parameters, alone.parameters):
