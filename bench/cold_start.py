@@ -1,9 +1,11 @@
 """The first fit of a fresh process: the command line's cold start, and the Python API's import plus first fit
 against semopy's, each in new processes taking turns (so that a change in the machine's load affects them alike).
 
-    python bench/cold_start.py [--runs 9] [--imports] [--stages 5]
+    python bench/cold_start.py [--runs 9] [--imports] [--stages 5] [--instructions]
         # --imports: the slowest imports of one command-line run
         # --stages N: the processor time of each stage of the command's start, median of N fresh processes
+        # --instructions: the instructions of one command-line run, counted by valgrind (needs valgrind; a
+        #   minute or more): a measure the machine's load does not move
 
 Case 1 (Holzinger-Swineford, 9 items, N = 301), from a CSV file:
 
@@ -74,11 +76,9 @@ import scipy.linalg
 mark("scipy.linalg (LAPACK; with scipy's array-API layer)")
 import scipy.special
 mark("scipy.special (p-values, the RMSEA interval)")
-import lark
-mark("lark")
 import cfa_tool
 cfa_tool.parse_model(open(sys.argv[1]).read())
-mark("the model grammar's parser and the first model parsed")
+mark("the model grammar's parser (generated ahead of time) and the first model parsed")
 import rich.console, rich.table
 mark("rich")
 import cfa_tool.cli, cfa_tool.commands.fit, cfa_tool.pipeline.inputs, cfa_tool.reporting.terminal
@@ -102,6 +102,17 @@ def stage_times(script: Path, model: Path, data: Path, env: dict, runs: int) -> 
     return {name: statistics.median(run[name] for run in found) for name in found[0]}
 
 
+def instructions(command: list[str], env: dict) -> int:
+    """Instructions of one run of ``command`` (valgrind's callgrind, which counts every instruction the process
+    and its libraries execute)."""
+    done = subprocess.run(["valgrind", "--tool=callgrind", "--callgrind-out-file=/dev/null", *command], env=env,
+                          stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
+    found = [line for line in done.stderr.splitlines() if "Collected" in line]
+    if done.returncode != 0 or not found:
+        raise SystemExit(f"valgrind {' '.join(command[:3])}... failed:\n{done.stderr[-2000:]}")
+    return int(found[-1].split()[-1])
+
+
 def run_child(command: list[str], env: dict) -> tuple[float, float]:
     """(wall seconds, processor seconds of the child) of one run; a failing child stops the benchmark."""
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
@@ -120,6 +131,8 @@ def main() -> None:
     parser.add_argument("--imports", action="store_true", help="also list the slowest imports of one command-line run")
     parser.add_argument("--stages", type=int, default=0, metavar="N",
                         help="also the processor time of each stage of the start (median of N fresh processes)")
+    parser.add_argument("--instructions", action="store_true",
+                        help="also the instructions of one command-line run, counted by valgrind's callgrind")
     args = parser.parse_args()
     from semopy.examples import holzinger39
 
@@ -171,10 +184,15 @@ def main() -> None:
             for name, ms in stages.items():
                 print(f"  {ms:7.1f}  {name}")
             print(f"  {sum(list(stages.values())[:-1]):7.1f}  up to the first report")
+        counted = None
+        if args.instructions:
+            counted = instructions(commands["command line: cfa-tool fit"], env)
+            print(f"instructions of one command-line run (callgrind): {counted:,}")
         out = ROOT / "bench" / "results"
         out.mkdir(exist_ok=True)
         (out / "cold_start.json").write_text(json.dumps({"load_average": [load_before, load_after], "runs": args.runs,
-                                                         "rows": rows, "stages_ms": stages}, indent=2))
+                                                         "rows": rows, "stages_ms": stages,
+                                                         "command_instructions": counted}, indent=2))
 
 
 if __name__ == "__main__":
