@@ -48,6 +48,11 @@ def test_a_fit_from_the_command_line_imports_only_what_its_report_uses(tmp_path)
     # the writers of files it was not asked for, and the path diagram, which the terminal names without drawing
     for writer in ("json_report", "html_report", "docx_report", "text_formats", "diagram", "escape"):
         assert f"cfa_tool.reporting.{writer}" not in loaded, writer
+    # a complete-data fit runs nothing of fits with gaps, of many fits at once or of robust tests
+    for module in ("estimation.fiml", "estimation.stacked", "inference.robust", "inference.design", "data.em",
+                   "data.patterns"):
+        assert f"cfa_tool.{module}" not in loaded, module
+    assert "cfa_tool.language.generated_parser" in loaded  # the model grammar's parser, generated ahead of time
     assert "cfa_tool.reporting.terminal" in loaded  # (what the report was drawn with)
     assert threshold == cli.COLLECT_EVERY
 
