@@ -76,9 +76,11 @@ import scipy.linalg
 mark("scipy.linalg (LAPACK; with scipy's array-API layer)")
 import scipy.special
 mark("scipy.special (p-values, the RMSEA interval)")
+import lark
+mark("lark")
 import cfa_tool
 cfa_tool.parse_model(open(sys.argv[1]).read())
-mark("the model grammar's parser (generated ahead of time) and the first model parsed")
+mark("the model grammar's parser and the first model parsed")
 import rich.console, rich.table
 mark("rich")
 import cfa_tool.cli, cfa_tool.commands.fit, cfa_tool.pipeline.inputs, cfa_tool.reporting.terminal

@@ -52,7 +52,6 @@ def test_a_fit_from_the_command_line_imports_only_what_its_report_uses(tmp_path)
     for module in ("estimation.fiml", "estimation.stacked", "inference.robust", "inference.design", "data.em",
                    "data.patterns"):
         assert f"cfa_tool.{module}" not in loaded, module
-    assert "cfa_tool.language.generated_parser" in loaded  # the model grammar's parser, generated ahead of time
     assert "cfa_tool.reporting.terminal" in loaded  # (what the report was drawn with)
     assert threshold == cli.COLLECT_EVERY
 
