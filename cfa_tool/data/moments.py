@@ -126,10 +126,6 @@ class ItemColumns:
         return self.values if frame is self.frame and tuple(names) == self.names else None
 
 
-def item_columns(frame: pd.DataFrame, names: tuple[str, ...] | list[str]) -> ItemColumns:
-    return ItemColumns(frame, tuple(names), item_values(frame, names))
-
-
 def _copied(columns: list[pd.Series], rows: int) -> np.ndarray:
     out = np.empty((rows, len(columns)), order="F")  # column by column, as item_values lays them out
     for j, column in enumerate(columns):

@@ -14,7 +14,7 @@ import pandas as pd
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.matching import answer_range_notes, check_columns, check_declared_ranges
-from cfa_tool.data.moments import SampleMoments, item_columns, missing_summary, row_numbers, sample_moments
+from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
@@ -162,12 +162,13 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         notes += filter_notes
     check_columns(spec, columns, loaded.source, loaded.sheet_hint())
     check_declared_ranges(spec, frame, loaded.source)
-    notes += answer_range_notes(spec, frame, loaded.source, loaded.value_labels)
+    values = item_values(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
+    notes += answer_range_notes(spec, frame, loaded.source, loaded.value_labels, values)
     frame, labelled = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)
     if labelled:
         notes.append(f"{loaded.source}: the codes of {', '.join(repr(c) for c in labelled)} are read as their value "
                      f"labels (groups, clusters and filters name them so)")
-    items = item_columns(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
+    items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
     return spec, replace(loaded, frame=frame, read_frame=loaded.frame if keep else None,
                          row_filters=tuple(f.text for f in filters), items=items,
                          odd_values=odd_values(frame, spec.observed_names, row_numbers(frame), items.values)), notes
