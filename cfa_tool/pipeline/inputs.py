@@ -149,11 +149,12 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     spec = load_spec(model)
     loaded = load_data(data, sheet, missing_codes, text_columns)
     frame = loaded.frame
-    columns = [str(c) for c in frame.columns]
+    labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
+    columns = [c if type(c) is str else str(c) for c in labels]
     if len(set(columns)) != len(columns):
         dup = next(c for c in columns if columns.count(c) > 1)
         raise OptionError(f"{loaded.source}: the column name '{dup}' appears more than once")
-    if not all(type(c) is str for c in frame.columns):  # column labels as text (a renamed copy only when needed)
+    if not all(type(c) is str for c in labels):  # column labels as text (a renamed copy only when needed)
         frame = frame.set_axis(columns, axis=1)
     notes: list[str] = list(loaded.notes)
     filters = [parse_filter(k) for k in keep]
