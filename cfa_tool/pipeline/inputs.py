@@ -517,6 +517,8 @@ def rows_with_gaps(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarr
     """Which rows miss an answer on one of ``names`` (column by column: a sub-frame of the model variables costs
     more; ``values``: the columns already taken out, data.moments.item_values)."""
     if values is not None:
+        if not np.isnan(values.sum()):  # a gap (NaN) spreads through the sum: without one, no mask of every cell
+            return np.zeros(len(values), dtype=bool)
         return np.isnan(values).any(axis=1)
     gap = np.zeros(len(frame), dtype=bool)
     for name in names:
