@@ -428,11 +428,13 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     notes = missing_notes + notes
     if design is not None:
         fit_options = design_test(fit_options, design)
-    with blas_threads_for(len(spec.observed_names)):  # EM on thousands of rows: one thread beats several on small p
+    # EM on thousands of rows: one thread beats several on small p; the moments and the fit in one context (the
+    # fit's own then finds one thread already and sets nothing)
+    with blas_threads_for(len(spec.observed_names)):
         groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design,
                                           values)
-    notes += group_notes
-    result = converged(fit_moments(spec, groups, fit_options, group_column=group))
+        notes += group_notes
+        result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     if design is not None:
         result = with_design(result, design_summary(frame, design, [m for _, m in groups]))
     analysed = _labelled(frame, group)
