@@ -321,7 +321,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
         centred = data - means
         cov = centred.T @ centred / n
     else:
-        w = w[complete]
+        w = w if every_row else w[complete]
         means = w @ data / w.sum()
         centred = data - means
         cov = (centred * w[:, None]).T @ centred / w.sum()
