@@ -195,7 +195,9 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
     d = phi.diagonal()
     if len(latent) > 1 and np.all(d > 0):
         corr = phi / np.sqrt(np.outer(d, d))
-        for i, j in zip(*(k.tolist() for k in np.nonzero(np.tril(np.abs(corr) > 1.0, -1)))):  # pairs i > j, row by row
+        beyond = np.abs(corr) > 1.0
+        pairs = np.nonzero(np.tril(beyond, -1)) if beyond.any() else ((), ())  # (tril only when some entry is)
+        for i, j in zip(*(np.asarray(k).tolist() for k in pairs)):  # pairs i > j, row by row
             out.append(Problem(
                 ProblemKind.FACTOR_CORRELATION_BEYOND_ONE, (f"factor_covariance({latent[j]}, {latent[i]})",),
                 float(corr[i, j]),
@@ -311,7 +313,8 @@ def solution_problems(table: ParameterTable, mats: list[ModelMatrices], theta: n
         found = matrix_problems(m, table.observed, table.latent, label, se_of)
         out.extend(p for p in found if standardized_loadings or p.kind is not ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE)
     if table.n_free:
-        out.extend(bound_problems(layout.free_names, theta, table.lower, table.upper))
+        if layout.bounded:
+            out.extend(bound_problems(layout.free_names, theta, table.lower, table.upper))
         if cov_theta is not None:
             out.extend(identification_problems(layout.free_names, se, theta))
     return tuple(out)
@@ -323,6 +326,7 @@ class _Labels:
 
     single_terms: tuple[tuple[tuple[str, int, float], ...], ...]  # per group: (label, theta index, |coefficient|)
     free_names: tuple[str, ...]  # each free parameter named as its table row does: residual_variance(x9) [group]
+    bounded: bool  # some free parameter has a finite bound (else no estimate can be held at one)
 
 
 def _labels_of(table: ParameterTable) -> _Labels:
@@ -335,7 +339,8 @@ def _labels_of(table: ParameterTable) -> _Labels:
             if labels[index] == table.free_labels[index]:
                 suffix = f" [{table.groups[par.group]}]" if table.multigroup else ""
                 labels[index] = par.label + suffix
-    return _Labels(tuple(tuple(s) for s in single), tuple(labels))
+    return _Labels(tuple(tuple(s) for s in single), tuple(labels),
+                   bool(np.isfinite(table.lower).any() or np.isfinite(table.upper).any()))
 
 
 _MATRIX_KINDS = ("loading", "factor_variance", "factor_covariance", "residual_variance", "residual_covariance")

@@ -121,7 +121,8 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
         )
 
 
-def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict | None = None) -> list[str]:
+def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict | None = None,
+                       values=None) -> list[str]:
     """Answers that look impossible without being refused, named first in every view (column, value, rows):
 
     * answers of the other items of a factor that a 'reversed ... on MIN to MAX' statement keys, outside that
@@ -129,49 +130,73 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
       as answered on another scale; fewer are refused by :func:`check_declared_ranges`, as the statement's own
       items' are; an item whose values are not whole numbers is a measure, not answers on the scale (no note);
     * values of an item that has value labels (SPSS, Stata) but not for that value, such as an 8 in an item
-      labelled 1 to 7."""
-    import numpy as np
-    import pandas as pd
+      labelled 1 to 7.
 
+    ``values``: the model's items (``spec.observed_names``) of ``frame`` as ``data.moments.item_values`` takes them
+    out, when it could (None: each column judged is read on its own).  Only the columns a declared scale or value
+    labels judge are read: a model without either costs nothing here."""
+    import numpy as np
+
+    labels = value_labels or {}
+    scales = declared_scales(spec, frame) if spec.reversed else {}
+    judged = [x for x in spec.observed_names if x in scales or (labels.get(x) and x in frame.columns)]
+    if not judged:
+        return []
     from cfa_tool.data.moments import row_numbers
 
     data_name = data_source.replace("\\", "/").rsplit("/", 1)[-1]
     scale_of: dict[str, tuple[float, float, str]] = {}  # partners answered on another scale -> (min, max, factor)
-    for x, (low, high, _, named) in declared_scales(spec, frame).items():
-        judged = None if named else _outside(frame, x, low, high)
-        if judged is not None and judged[2] and not judged[3]:  # whole numbers, many outside: another scale
+    for x, (low, high, _, named) in scales.items():
+        found = None if named else _outside(frame, x, low, high)
+        if found is not None and found[2] and not found[3]:  # whole numbers, many outside: another scale
             factor = next(f.name.text for f in spec.factors if x in {i.text for i in f.indicators})
             scale_of[x] = (low, high, factor)
-    rows = row_numbers(frame)
+    columns = _answer_columns(frame, judged, spec.observed_names, values)
     out = []
+    rows = None
 
     def listed(mask) -> str:
+        nonlocal rows
+        rows = row_numbers(frame) if rows is None else rows
         where = rows[mask]
         shown = ", ".join(str(r) for r in where[:5])
         return f"data row{'s' if len(where) > 1 else ''} {shown}" + (f" and {len(where) - 5} more" if len(where) > 5 else "")
 
-    for x in spec.observed_names:
-        if x not in frame.columns:
+    for x in judged:
+        column = columns.get(x)
+        if column is None:  # not numbers to compute with: the reading of the items says so
             continue
-        try:
-            values = pd.to_numeric(frame[x], errors="coerce").to_numpy(dtype=float)
-        except (OverflowError, TypeError, ValueError):  # not numbers to compute with: the reading of the items says so
-            continue
-        answered = np.isfinite(values)
+        answered = np.isfinite(column)
         if x in scale_of:
             low, high, factor = scale_of[x]
-            for v in sorted(set(values[answered & ((values < low) | (values > high))].tolist())):
-                out.append(f"{data_name}: '{x}' has the answer {v:g} ({listed(values == v)}), outside the scale "
+            for v in np.unique(column[answered & ((column < low) | (column > high))]).tolist():
+                out.append(f"{data_name}: '{x}' has the answer {v:g} ({listed(column == v)}), outside the scale "
                            f"{low:g} to {high:g} that the 'reversed' statement declares for the items of {factor}; "
                            f"so many of its answers lie outside that it is read as answered on another scale; if "
                            f"{v:g} is a typing error or means 'no answer', give --missing-codes {v:g}")
             continue
-        labels = (value_labels or {}).get(x)
-        if labels:
-            known = {float(k) for k in labels if isinstance(k, (int, float))}
-            if known:
-                for v in sorted(set(values[answered].tolist()) - known):
-                    out.append(f"{data_name}: '{x}' has the value {v:g} ({listed(values == v)}), which has no value "
-                               f"label, while its other values are labelled; if it is a typing error or means 'no "
-                               f"answer', give --missing-codes {v:g} (or correct it in a copy of the file)")
+        known = {float(k) for k in labels.get(x) or () if isinstance(k, (int, float))}
+        if known:
+            for v in sorted(set(column[answered].tolist()) - known):
+                out.append(f"{data_name}: '{x}' has the value {v:g} ({listed(column == v)}), which has no value "
+                           f"label, while its other values are labelled; if it is a typing error or means 'no "
+                           f"answer', give --missing-codes {v:g} (or correct it in a copy of the file)")
+    return out
+
+
+def _answer_columns(frame, judged: list[str], items, values) -> dict:
+    """The ``judged`` columns as float arrays: from the items' array ``values`` when given, else each converted on
+    its own (text that is not a number as NaN); a column that cannot be converted is left out."""
+    import numpy as np
+    import pandas as pd
+
+    if values is not None:
+        where = {x: j for j, x in enumerate(items)}
+        return {x: values[:, where[x]] for x in judged}
+    out = {}
+    for x in judged:
+        try:
+            out[x] = np.asarray(pd.to_numeric(frame[x], errors="coerce").to_numpy(dtype=float))
+        except (OverflowError, TypeError, ValueError):
+            continue
     return out

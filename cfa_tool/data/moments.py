@@ -126,10 +126,6 @@ class ItemColumns:
         return self.values if frame is self.frame and tuple(names) == self.names else None
 
 
-def item_columns(frame: pd.DataFrame, names: tuple[str, ...] | list[str]) -> ItemColumns:
-    return ItemColumns(frame, tuple(names), item_values(frame, names))
-
-
 def _copied(columns: list[pd.Series], rows: int) -> np.ndarray:
     out = np.empty((rows, len(columns)), order="F")  # column by column, as item_values lays them out
     for j, column in enumerate(columns):
@@ -201,6 +197,12 @@ LARGEST_SPREAD_RATIO = 1e15  # between the largest and smallest standard deviati
 
 def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, values: np.ndarray | None = None) -> np.ndarray:
     """The named columns as floats (``values``: their :func:`item_values`, when already taken out), checked."""
+    return _checked_rows(frame, names, source, values)[0]
+
+
+def _checked_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str,
+                  values: np.ndarray | None) -> tuple[np.ndarray, bool]:
+    """:func:`_numeric_rows` and whether every cell holds a number (no gaps)."""
     if values is None:
         values = numeric_columns(frame, names, source)
     finite = bool(np.isfinite(values).all())
@@ -223,8 +225,10 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, valu
     with np.errstate(invalid="ignore"):
         if not len(values):
             largest = np.zeros(values.shape[1])
-        else:  # without gaps the plain maximum (nanmax first copies the array)
-            largest = np.abs(values).max(axis=0) if finite else np.nanmax(np.abs(values), axis=0)
+        elif finite:  # without gaps the plain extremes (no array of absolute values; nanmax copies the array)
+            largest = np.maximum(values.max(axis=0), -values.min(axis=0))
+        else:
+            largest = np.nanmax(np.abs(values), axis=0)
     if (largest > LARGEST_VALUE).any():
         col = int(np.flatnonzero(largest > LARGEST_VALUE)[0])
         row = int(np.nanargmax(np.abs(values[:, col])))
@@ -232,7 +236,7 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, valu
                         f"{row_numbers(frame)[row]}), too "
                         f"large to compute with; if the value is right, divide the column by a power of ten (the fit does "
                         f"not change), otherwise correct it")
-    return values
+    return values, finite
 
 
 def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], source: str) -> None:
@@ -296,13 +300,13 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     file_source = source
     if group is not None:
         source = f"{source} (group {group})"
-    values = _numeric_rows(frame, names, source, values)
+    values, finite = _checked_rows(frame, names, source, values)
     w = pd.to_numeric(frame[weights]).to_numpy(dtype=float) if weights is not None else None
     p = values.shape[1]
     if missing == MissingData.FULL_INFORMATION:  # the member or its word
         return _incomplete_moments(values, names, source, file_source, group, len(frame), w)
-    complete = ~np.isnan(values).any(axis=1)
-    every_row = bool(complete.all())
+    complete = None if finite else ~np.isnan(values).any(axis=1)  # checked finite: every row is complete
+    every_row = complete is None or bool(complete.all())
     data = values if every_row else values[complete]
     n = len(data)
     if n == 0:
@@ -317,7 +321,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
         centred = data - means
         cov = centred.T @ centred / n
     else:
-        w = w[complete]
+        w = w if every_row else w[complete]
         means = w @ data / w.sum()
         centred = data - means
         cov = (centred * w[:, None]).T @ centred / w.sum()

@@ -174,16 +174,16 @@ def _may_stand_out(X: np.ndarray) -> np.ndarray:
     needs the highest answer at least the range of the others beyond them (highest - next <= next - lowest fails
     it), and at the bottom likewise; a column failing both has nothing to peel.  Comparisons with NaN keep a
     column (``_peeled`` judges it)."""
-    finite = np.isfinite(X)
-    if finite.all():  # no gaps (the common case): the same extremes without masking every cell first
+    finite = np.isfinite(X)  # the extremes over masks (no masked copy of the data: on a thousand rows its
+    if finite.all():  # allocation costs more than the comparisons); no gaps (the common case): fewer masks
         top, bottom = X.max(axis=0, initial=-np.inf), X.min(axis=0, initial=np.inf)
-        next_top = np.where(X < top, X, -np.inf).max(axis=0, initial=-np.inf)
-        next_bottom = np.where(X > bottom, X, np.inf).min(axis=0, initial=np.inf)
+        next_top = X.max(axis=0, initial=-np.inf, where=X < top)
+        next_bottom = X.min(axis=0, initial=np.inf, where=X > bottom)
     else:
-        top = np.where(finite, X, -np.inf).max(axis=0, initial=-np.inf)
-        bottom = np.where(finite, X, np.inf).min(axis=0, initial=np.inf)
-        next_top = np.where(finite & (X < top), X, -np.inf).max(axis=0, initial=-np.inf)
-        next_bottom = np.where(finite & (X > bottom), X, np.inf).min(axis=0, initial=np.inf)
+        top = X.max(axis=0, initial=-np.inf, where=finite)
+        bottom = X.min(axis=0, initial=np.inf, where=finite)
+        next_top = X.max(axis=0, initial=-np.inf, where=finite & (X < top))
+        next_bottom = X.min(axis=0, initial=np.inf, where=finite & (X > bottom))
     quiet = (top - next_top < next_top - bottom) & (next_bottom - bottom < top - next_bottom)
     return np.flatnonzero(~quiet)
 

@@ -151,11 +151,11 @@ def minimise(
             last_step = free_all and decrement**3 < 1e-2 * tolerance * previous_decrement**2
             previous_decrement = decrement
         else:
-            step = np.zeros_like(theta)
             try:
                 if free_all:
                     step = scaled_solve(current.information, -g)
                 else:
+                    step = np.zeros_like(theta)
                     step[inactive] = scaled_solve(current.information[np.ix_(inactive, inactive)], -g[inactive])
             except np.linalg.LinAlgError:
                 break

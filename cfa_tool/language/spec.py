@@ -212,6 +212,12 @@ class Spec:
     exploratory: tuple[ExploratoryBlock, ...] = ()  # their factors are in ``factors`` too, with their identification
     lines: tuple[str, ...] = field(default=(), repr=False, compare=False)
 
+    def __hash__(self) -> int:
+        """Specs that compare equal have the same source and text, whose hashes Python keeps with the strings: a
+        Spec keys the caches every fit reads (its model structure, its description) without hashing every
+        statement on each look-up (specs built from one text differ in their other fields, and compare so)."""
+        return hash((self.source, self.text))
+
     @cached_property
     def factor_names(self) -> tuple[str, ...]:
         return tuple(f.name.text for f in self.factors)

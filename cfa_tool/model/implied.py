@@ -154,7 +154,10 @@ class StructuredModel:
             return ModelMatrices(*[buffer[:, a:b].reshape((len(theta), *shape)) for a, b, shape in pieces])
         buffer = np.zeros(size)
         buffer[at] = (self._offset[group] + self._J[group] @ theta)[take]
-        return ModelMatrices(*[buffer[a:b].reshape(shape) for a, b, shape in pieces])
+        mats = ModelMatrices(*[buffer[a:b].reshape(shape) for a, b, shape in pieces])
+        if not self.higher_order:  # B has no entry in the table: known without looking at it
+            mats.__dict__["has_paths"] = False  # where the cached property keeps its value
+        return mats
 
     def thresholds(self, theta: np.ndarray, group: int = 0) -> np.ndarray:
         """Thresholds of the ordinal items (matrix K), stacked item by item."""

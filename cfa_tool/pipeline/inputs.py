@@ -14,7 +14,7 @@ import pandas as pd
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.matching import answer_range_notes, check_columns, check_declared_ranges
-from cfa_tool.data.moments import SampleMoments, item_columns, missing_summary, row_numbers, sample_moments
+from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.non_answers import non_answer_caution
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
@@ -144,11 +144,12 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     spec = load_spec(model)
     loaded = load_data(data, sheet, missing_codes, text_columns)
     frame = loaded.frame
-    columns = [str(c) for c in frame.columns]
+    labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
+    columns = [c if type(c) is str else str(c) for c in labels]
     if len(set(columns)) != len(columns):
         dup = next(c for c in columns if columns.count(c) > 1)
         raise OptionError(f"{loaded.source}: the column name '{dup}' appears more than once")
-    if not all(type(c) is str for c in frame.columns):  # column labels as text (a renamed copy only when needed)
+    if not all(type(c) is str for c in labels):  # column labels as text (a renamed copy only when needed)
         frame = frame.set_axis(columns, axis=1)
     notes: list[str] = list(loaded.notes)
     filters = [parse_filter(k) for k in keep]
@@ -157,9 +158,10 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         notes += filter_notes
     check_columns(spec, columns, loaded.source, loaded.sheet_hint())
     check_declared_ranges(spec, frame, loaded.source, loaded.value_labels)
-    notes += answer_range_notes(spec, frame, loaded.source, loaded.value_labels)
+    values = item_values(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
+    notes += answer_range_notes(spec, frame, loaded.source, loaded.value_labels, values)
     frame = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)  # said where used (labels.label_notes)
-    items = item_columns(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
+    items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
     return spec, replace(loaded, frame=frame, read_frame=loaded.frame if keep else None,
                          row_filters=tuple(f.text for f in filters), items=items,
                          odd_values=odd_values(frame, spec.observed_names, row_numbers(frame), items.values)), notes
@@ -424,11 +426,13 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     notes = missing_notes + notes
     if design is not None:
         fit_options = design_test(fit_options, design)
-    with blas_threads_for(len(spec.observed_names)):  # EM on thousands of rows: one thread beats several on small p
+    # EM on thousands of rows: one thread beats several on small p; the moments and the fit in one context (the
+    # fit's own then finds one thread already and sets nothing)
+    with blas_threads_for(len(spec.observed_names)):
         groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design,
                                           values)
-    notes += group_notes
-    result = converged(fit_moments(spec, groups, fit_options, group_column=group))
+        notes += group_notes
+        result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     if design is not None:
         result = with_design(result, design_summary(frame, design, [m for _, m in groups]))
     analysed = _labelled(frame, group)
@@ -513,6 +517,8 @@ def rows_with_gaps(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarr
     """Which rows miss an answer on one of ``names`` (column by column: a sub-frame of the model variables costs
     more; ``values``: the columns already taken out, data.moments.item_values)."""
     if values is not None:
+        if not np.isnan(values.sum()):  # a gap (NaN) spreads through the sum: without one, no mask of every cell
+            return np.zeros(len(values), dtype=bool)
         return np.isnan(values).any(axis=1)
     gap = np.zeros(len(frame), dtype=bool)
     for name in names:

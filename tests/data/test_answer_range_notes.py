@@ -76,3 +76,37 @@ def test_a_partner_measured_in_fractions_is_not_judged_by_the_declared_scale(ans
     assert 0 < (measured["a2"] < 1).mean() < 0.2  # few outside: judged by the scale if they were whole numbers
     result = cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", measured)
     assert not [w for w in result.warnings if "outside the scale" in w]
+
+
+def test_declared_scale_and_value_labels_together_name_each_answer_once(tmp_path, answers):
+    """Both rules on one file: a partner of the reversed item answered on another scale is named by the declared
+    scale (not by its labels), the other factor's items by their labels; a model without either reads nothing
+    (the notes cost a fit nothing then).  Check values: the cells set by hand in the fixture."""
+    import pyreadstat
+
+    scale = {1: "never", 2: "rarely", 3: "sometimes", 4: "often", 5: "always"}
+    doubled = answers.assign(a2=answers["a2"] * 2)
+    path = tmp_path / "labelled.sav"
+    pyreadstat.write_sav(doubled, str(path), variable_value_labels={c: scale for c in ITEMS})
+    result = cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", path)
+    named = [w for w in result.warnings if "outside the scale" in w or "has no value label" in w]
+    assert [w.split(" (")[0] for w in named] == [
+        *(f"labelled.sav: 'a2' has the answer {v}" for v in (0, 6, 8, 10)), "labelled.sav: 'b3' has the value 9"]
+    plain = cfa_tool.fit(MODEL, answers)
+    assert not [w for w in plain.warnings if "outside the scale" in w or "has no value label" in w]
+
+
+def test_items_that_are_not_all_numbers_are_judged_one_by_one(answers):
+    """A text column among the items (so the items are not taken out as one array): the declared scale still
+    judges its partners, and the notes are those of the items' array.  Check values: the cells set by hand in the
+    fixture."""
+    from cfa_tool.data.matching import answer_range_notes
+    from cfa_tool.language.parser import parse_model
+
+    spec = parse_model(MODEL + "reversed a1 on 1 to 5\n", source="<model text>")
+    doubled = answers.assign(a2=answers["a2"] * 2)
+    mixed = doubled.astype({"a3": object})
+    mixed.loc[0, "a3"] = "n/a"
+    notes = answer_range_notes(spec, mixed, "<data frame>")
+    assert [n.split(" (")[0] for n in notes] == [f"<data frame>: 'a2' has the answer {v}" for v in (0, 6, 8, 10)]
+    assert notes == answer_range_notes(spec, doubled, "<data frame>", values=doubled[ITEMS].to_numpy(dtype=float))
