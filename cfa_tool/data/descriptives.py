@@ -38,3 +38,34 @@ def item_shape(rows: np.ndarray) -> ItemShape:
 def _plain_mean(rows: np.ndarray, axis: int) -> np.ndarray:
     """numpy's mean of rows without gaps (the sum divided by the count, as np.mean computes it) without its checks."""
     return rows.sum(axis=axis) / rows.shape[axis]
+
+
+#: items answered in at most this many categories are, by common practice, analysed as ordered categories
+#: rather than as continuous (Rhemtulla, Brosseau-Liard & Savalei 2012: maximum likelihood on Pearson
+#: covariances does well from about five categories on)
+FEW_CATEGORIES = 4
+
+
+def few_category_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[str, ...]:
+    """The items (columns of ``values``, gaps NaN) answered in whole numbers spanning at most FEW_CATEGORIES
+    values (so at most that many categories), with two categories at least."""
+    answered = ~np.isnan(values)
+    with np.errstate(invalid="ignore"):
+        low = np.nanmin(np.where(answered, values, np.inf), axis=0)
+        high = np.nanmax(np.where(answered, values, -np.inf), axis=0)
+        whole = np.all(~answered | (values == np.round(values)), axis=0)
+    few = whole & (high > low) & (high - low <= FEW_CATEGORIES - 1)
+    return tuple(name for name, flag in zip(names, few) if flag)
+
+
+def few_category_note(values: np.ndarray, names: tuple[str, ...]) -> str | None:
+    """The note of a fit that treats items of few answer categories as continuous (None when none are)."""
+    few = few_category_items(values, names)
+    if not few:
+        return None
+    listed = ", ".join(few[:8]) + (f" and {len(few) - 8} more" if len(few) > 8 else "")
+    which = "all" if len(few) == len(names) else ",".join(few)
+    return (f"{len(few)} of the {len(names)} items ({listed}) have at most {FEW_CATEGORIES} answer categories and are "
+            f"analysed here as continuous by maximum likelihood; with so few categories loadings tend to come out "
+            f"too small and the fit to be misjudged, and analysing the answers as ordered categories is usually "
+            f"preferred (Rhemtulla, Brosseau-Liard & Savalei 2012): --ordinal {which}")

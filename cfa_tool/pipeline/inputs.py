@@ -16,6 +16,7 @@ from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled
 from cfa_tool.data.matching import answer_range_notes, check_columns, check_declared_ranges
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.non_answers import non_answer_caution
+from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import LoadedData, read_data
@@ -424,6 +425,9 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     values = loaded.items.of(frame, spec.observed_names) if loaded.items is not None else None
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values)
     notes = missing_notes + notes
+    few = few_category_note(values, spec.observed_names) if values is not None else None
+    if few:
+        notes.append(few)
     if design is not None:
         fit_options = design_test(fit_options, design)
     # EM on thousands of rows: one thread beats several on small p; the moments and the fit in one context (the
