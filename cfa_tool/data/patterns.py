@@ -85,13 +85,15 @@ def pattern_data(rows: np.ndarray, weights: np.ndarray | None = None) -> Pattern
     return PatternData(patterns, counts, means, scatter, index, rows, weights)
 
 
-def embedded_inverse(sigma: np.ndarray, observed: np.ndarray) -> tuple[np.ndarray, np.ndarray] | None:
+def embedded_inverse(sigma: np.ndarray, observed: np.ndarray, missing: list | None = None
+                     ) -> tuple[np.ndarray, np.ndarray] | None:
     """For each pattern, Sigma_oo^-1 embedded in p x p (zeros outside) and log|Sigma_oo|.
 
     From the full precision matrix L = Sigma^-1 by the Schur complement:
     Sigma_oo^-1 = L_oo - L_om (L_mm)^-1 L_mo and |Sigma_oo| = |Sigma| |L_mm|, so each
     pattern needs only the inverse of its small missing block; patterns with the
-    same number of missing items are handled in one batch.
+    same number of missing items are handled in one batch.  ``missing``: the batches
+    (``list(missing_groups(observed))``), when the caller keeps them for many calls.
     """
     P, p = observed.shape
     try:
@@ -102,18 +104,19 @@ def embedded_inverse(sigma: np.ndarray, observed: np.ndarray) -> tuple[np.ndarra
         return None
     logdet_sigma = 2.0 * float(np.sum(np.log(np.diag(chol))))
     try:
-        return _schur_inverses(sigma, observed, logdet_sigma)
+        return _schur_inverses(sigma, observed, logdet_sigma, missing)
     except np.linalg.LinAlgError:  # numerically singular although its Cholesky factor exists
         return None
 
 
-def _schur_inverses(sigma: np.ndarray, observed: np.ndarray, logdet_sigma: float) -> tuple[np.ndarray, np.ndarray] | None:
+def _schur_inverses(sigma: np.ndarray, observed: np.ndarray, logdet_sigma: float, missing: list | None = None
+                    ) -> tuple[np.ndarray, np.ndarray] | None:
     P, p = observed.shape
     precision = np.linalg.inv(sigma)
     precision = 0.5 * (precision + precision.T)
     A = np.broadcast_to(precision, (P, p, p)).copy()
     logdet = np.full(P, logdet_sigma)
-    for which, miss in missing_groups(observed):  # patterns batched by their number of missing items
+    for which, miss in missing_groups(observed) if missing is None else missing:  # batched by the number missing
         block = precision[miss[:, :, None], miss[:, None, :]]  # (k, m, m) = L_mm
         try:
             block_chol = np.linalg.cholesky(block)

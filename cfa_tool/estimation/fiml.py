@@ -79,10 +79,45 @@ class MissingDataLikelihood:
         self.n_statistics = len(patterns) * (self.p * (self.p + 1) // 2 + self.p)
         self.saturated_value = [pattern_objective(d, mu, sigma) for d, (mu, sigma) in zip(patterns, saturated)]
         self._row_blocks = [_row_blocks(d.rows, d.row_weights) for d in patterns]  # fixed by the data: computed once
+        # each group's missing items by pattern, batched by their number (fixed by the data), for embedded_inverse
+        self._missing = [list(missing_groups(d.observed)) for d in patterns]
+        self._at = None  # the last point's per-pattern pieces: (theta's bytes, {group: pieces})
+
+    def _pieces(self, theta: np.ndarray, g: int):
+        """Group g's per-pattern pieces at theta: (matrices, A, log|Sigma_oo|, w, d, T), None if some Sigma_oo is
+        not positive definite.  The search asks for the value, the gradient and information, and the Hessian at the
+        same point one after the other; the pieces of the last point are kept, so they are computed once."""
+        key = theta.tobytes()
+        if self._at is None or self._at[0] != key:
+            self._at = (key, {})
+        kept = self._at[1]
+        if g not in kept:
+            data = self.patterns[g]
+            mats = self.model.matrices(theta, g)
+            inv = embedded_inverse(mats.implied_covariance(), data.observed, self._missing[g])
+            if inv is None:
+                kept[g] = None
+            else:
+                A, logdet = inv
+                dev = np.where(data.observed, data.means - mats.implied_mean(), 0.0)
+                T = data.scatter + dev[:, :, None] * dev[:, None, :]
+                kept[g] = (mats, A, logdet, data.counts / data.n_obs, dev, T)
+        return kept[g]
+
+    def _jacobian(self, theta: np.ndarray, g: int):
+        """model.jacobian(theta, g), kept with the point's pieces (the information and the Hessian both use it)."""
+        self._pieces(theta, g)
+        kept = self._at[1]
+        if ("jacobian", g) not in kept:
+            kept[("jacobian", g)] = self.model.jacobian(theta, g)
+        return kept[("jacobian", g)]
 
     def group_discrepancy(self, theta: np.ndarray, g: int) -> float:
-        mats = self.model.matrices(theta, g)
-        return pattern_objective(self.patterns[g], mats.implied_mean(), mats.implied_covariance()) - self.saturated_value[g]
+        pieces = self._pieces(theta, g)
+        if pieces is None:
+            return np.inf
+        _, A, logdet, w, _, T = pieces  # pattern_objective's sum
+        return float(w @ (logdet + np.einsum("kij,kji->k", A, T))) - self.saturated_value[g]
 
     def value(self, theta: np.ndarray) -> float:
         return float(sum(w * self.group_discrepancy(theta, g) for g, w in enumerate(self.weights)))
@@ -90,19 +125,17 @@ class MissingDataLikelihood:
     def _pattern_state(self, theta: np.ndarray, g: int):
         """Group g's per-pattern pieces at theta (None if some Sigma_oo is not positive definite):
         (matrices, A, w, A T A, M, A d, m) in the notation of the module docstring."""
-        data = self.patterns[g]
-        mats = self.model.matrices(theta, g)
-        inv = embedded_inverse(mats.implied_covariance(), data.observed)
-        if inv is None:
+        pieces = self._pieces(theta, g)
+        if pieces is None:
             return None
-        A, _ = inv
-        w = data.counts / data.n_obs
-        dev = np.where(data.observed, data.means - mats.implied_mean(), 0.0)
-        T = data.scatter + dev[:, :, None] * dev[:, None, :]
-        ATA = A @ T @ A
-        M = np.tensordot(w, A - ATA, axes=1)
-        Ad = (A @ dev[:, :, None])[:, :, 0]
-        return mats, A, w, ATA, M, Ad, -2.0 * w @ Ad
+        kept = self._at[1]
+        if ("state", g) not in kept:
+            mats, A, _, w, dev, T = pieces
+            ATA = A @ T @ A
+            M = np.tensordot(w, A - ATA, axes=1)
+            Ad = (A @ dev[:, :, None])[:, :, 0]
+            kept[("state", g)] = mats, A, w, ATA, M, Ad, -2.0 * w @ Ad
+        return kept[("state", g)]
 
     def group_parts(self, theta: np.ndarray, g: int) -> MissingParts | None:
         state = self._pattern_state(theta, g)
@@ -120,7 +153,7 @@ class MissingDataLikelihood:
             parts = self.group_parts(theta, g)
             if parts is None:
                 return None
-            d_sigma, d_mu = self.model.jacobian(theta, g)
+            d_sigma, d_mu = self._jacobian(theta, g)
             gradient += w * parts.gradient(d_sigma, d_mu)
             information += w * parts.information(d_sigma, d_mu)
         value = self.value(theta)
@@ -147,7 +180,7 @@ class MissingDataLikelihood:
             if mats.B.any():
                 return None
             P, p, _ = A.shape
-            d_sigma, d_mu = self.model.jacobian(theta, g)
+            d_sigma, d_mu = self._jacobian(theta, g)
             same = _trace_contract(_trace_weights(A, A, w), d_sigma, d_sigma)  # sum_k w_k tr(A X A Y)
             mixed = _trace_contract(_trace_weights(A, ATA, w), d_sigma, d_sigma)  # sum_k w_k tr(A X (ATA) Y)
             t3 = (Ad * w[:, None]).T @ A.reshape(P, p * p)  # [i, (j, l)] = sum_k w_k (A d)_i A_jl

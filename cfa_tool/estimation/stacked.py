@@ -87,6 +87,11 @@ class StackedNormal:
         self._uv = basis.u * nb + basis.v
         self._second = model.second_orders[0]
         self._triangle = _Triangle.of(basis, self._second)
+        self._c2 = (2.0 * basis.c)[:, None]
+        # where the second derivatives read M L = Q[:p, p+m:] in the flat (p+2m) x (p+2m) Q
+        first, second = self._second.first, self._second.second
+        self._first = first // self.m * nb + self.p + self.m + first % self.m
+        self._second_at = second // self.m * nb + self.p + self.m + second % self.m
 
     def _sigma(self, theta: np.ndarray):
         """L (R, p, m), P (R, m, m), L P and Sigma = L P L' + T (R, p, p) at a stack of parameter vectors."""
@@ -146,52 +151,54 @@ class StackedNormal:
         V[:, :, p:p + m] = LP
         V[:, :, p + m:] = L
         Vt = np.swapaxes(V, 1, 2)
-        K = (Vt @ (inverse @ V)).reshape(R, -1)
-        Q = (Vt @ (W @ V)).reshape(R, -1)
+        # K and Q with the replications on the last axis ((entries, R)): every gather below then moves rows of R
+        # values at once (gathering along the last axis moves one number at a time)
+        K = (Vt @ (inverse @ V)).reshape(R, -1).T.copy()
+        Q = (Vt @ (W @ V)).reshape(R, -1).T.copy()
         take = np.take  # gathers along one axis: several times faster than fancy indexing with 2-d index arrays
-        gradient = 2.0 * self._basis.c * take(Q, self._uv, axis=1)
+        gradient = (self._c2 * take(Q, self._uv, axis=0)).T
         # the information and the Hessian are symmetric: their entries are computed on the upper triangle
-        # (pairs e <= f, flat (R, T)) and spread to both halves at the end
+        # (pairs e <= f, (T, R)) and spread to both halves at the end
         tri = self._triangle
-        Kuv, Kvu = take(K, tri.uv, axis=1), take(K, tri.vu, axis=1)
-        Kuu, Kvv = take(K, tri.uu, axis=1), take(K, tri.vv, axis=1)
+        Kuv, Kvu = take(K, tri.uv, axis=0), take(K, tri.vu, axis=0)
+        Kuu, Kvv = take(K, tri.uu, axis=0), take(K, tri.vv, axis=0)
         information = Kuu * Kvv
         information += Kuv * Kvu
-        information *= tri.cc2
+        information *= tri.cc2[:, None]
         hessian = None
         if hessian_out is not None:
             # the cross term tr(Sigma^-1 D_e W D_f) is symmetric in (e, f) (K and Q are), so the Hessian's
             # information - cross - cross' is information - 2 cross
-            cross = take(Q, tri.vu, axis=1) * Kuv
-            cross += take(Q, tri.vv, axis=1) * Kuu
-            cross += take(Q, tri.uu, axis=1) * Kvv
-            cross += take(Q, tri.uv, axis=1) * Kvu
-            cross *= tri.cc2
+            cross = take(Q, tri.vu, axis=0) * Kuv
+            cross += take(Q, tri.vv, axis=0) * Kuu
+            cross += take(Q, tri.uu, axis=0) * Kvv
+            cross += take(Q, tri.uv, axis=0) * Kvu
+            cross *= tri.cc2[:, None]
             hessian = information - cross + self._second_derivatives(W, P, Q)
         if self._identity:
-            take(information, tri.full, axis=1, out=information_out.reshape(R, -1), mode="clip")
+            information_out.reshape(R, -1)[...] = take(information, tri.full, axis=0).T
             if hessian is not None:
-                take(hessian, tri.full, axis=1, out=hessian_out.reshape(R, -1), mode="clip")
+                hessian_out.reshape(R, -1)[...] = take(hessian, tri.full, axis=0).T
         else:
             J = self._J
             gradient = gradient @ J
-            information_out[...] = J.T @ take(information, tri.full, axis=1).reshape(R, tri.size, tri.size) @ J
+            information_out[...] = J.T @ take(information, tri.full, axis=0).T.reshape(R, tri.size, tri.size) @ J
             if hessian is not None:
-                hessian_out[...] = J.T @ take(hessian, tri.full, axis=1).reshape(R, tri.size, tri.size) @ J
+                hessian_out[...] = J.T @ take(hessian, tri.full, axis=0).T.reshape(R, tri.size, tri.size) @ J
         return value, gradient, information_out, hessian_out, ok
 
     def _second_derivatives(self, W: np.ndarray, P: np.ndarray, Q: np.ndarray) -> np.ndarray:
-        """tr(W d2Sigma / de de') for the pairs e <= f of active entries, (R, T) (rank_two.second_derivative_contraction
-        with a leading axis, on the upper triangle: M L is the block Q[:p, p+m:] of Q, since V starts with I and ends
-        with L)."""
-        layout, tri, R, p, m = self._second, self._triangle, len(W), self.p, self.m
-        out = np.zeros((R, tri.pairs))
+        """tr(W d2Sigma / de de') for the pairs e <= f of active entries, (T, R) (rank_two.second_derivative_contraction
+        with a trailing axis of replications, on the upper triangle: M L is the block Q[:p, p+m:] of Q, since V starts
+        with I and ends with L; ``Q`` is (entries, R))."""
+        layout, tri, R = self._second, self._triangle, len(W)
+        out = np.zeros((tri.pairs, R))
         take = np.take
-        out[:, tri.load_load] = 2.0 * take(W.reshape(R, -1), tri.m_at, axis=1) * take(P.reshape(R, -1), tri.p_at, axis=1)
+        out[tri.load_load] = (2.0 * take(W.reshape(R, -1).T, tri.m_at, axis=0)) * take(P.reshape(R, -1).T, tri.p_at,
+                                                                                          axis=0)
         if len(layout.load_cov):
-            ML = Q.reshape(R, p + 2 * m, p + 2 * m)[:, :p, p + m:].reshape(R, -1)
-            out[:, tri.load_cov] = (take(ML, layout.first, axis=1) * layout.first_weight
-                                    + take(ML, layout.second, axis=1) * layout.second_weight)
+            out[tri.load_cov] = (take(Q, self._first, axis=0) * layout.first_weight[:, None]
+                                 + take(Q, self._second_at, axis=0) * layout.second_weight[:, None])
         return out
 
 

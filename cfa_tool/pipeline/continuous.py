@@ -493,9 +493,9 @@ def _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_w
         if standard_errors and information is None:
             information = observed_information(est.likelihood.gradient, est.theta, central=False)
         information = information[None] if standard_errors else None
-        from cfa_tool.estimation.fiml import fiml_baseline, fiml_log_likelihood
+        from cfa_tool.estimation.fiml import fiml_baseline
 
-        baseline = fiml_baseline(est.likelihood) + (fiml_log_likelihood(est.likelihood, est.theta),)
+        baseline = fiml_baseline(est.likelihood) if fit_indices_wanted else None  # only the indices use it
     else:
         information = est.likelihood.evaluate(est.theta).information[None] if standard_errors else None
         baseline = None
@@ -505,12 +505,12 @@ def _replicate_fit(spec, moments, options, start, standard_errors, fit_indices_w
 
 def _replicate_results(table: ParameterTable, model: StructuredModel, groups: list[GroupMoments], theta: np.ndarray,
                        value: np.ndarray, information: np.ndarray | None, standard_errors: bool,
-                       fit_indices_wanted: bool, full_information: tuple[float, int, float] | None = None
+                       fit_indices_wanted: bool, full_information: tuple[float, int] | None = None
                        ) -> list[ReplicateFit]:
     """What each replication keeps of converged single-group fits to ``groups`` with discrepancies ``value``
     at ``theta`` (R, q) (``information`` (R, q, q) the information there, wanted for standard
     errors): the chi-square always, the other indices when wanted.  ``full_information``: the one fit is a
-    full-information one, with this (baseline chi-square, its df, log-likelihood); its ``groups`` hold the
+    full-information one whose indices are wanted, with this (baseline chi-square, its df); its ``groups`` hold the
     saturated (EM) moments, and its indices are computed as ``fit`` computes them."""
     nan = float("nan")
     values = model.offset + theta @ model.J.T
@@ -532,7 +532,7 @@ def _replicate_results(table: ParameterTable, model: StructuredModel, groups: li
         if fit_indices_wanted:  # the indices a replication keeps, as fit_indices computes them (not its RMSEA
             # interval, close-fit test or information criteria, which root-finding and a log-likelihood would cost)
             S, sigma = gm.covariance, sigmas[r]
-            base_chi, base_df = baseline_chi_square(S, gm.n_obs) if full_information is None else full_information[:2]
+            base_chi, base_df = baseline_chi_square(S, gm.n_obs) if full_information is None else full_information
             df = p * (p + 1) // 2 + (p if table.mean_structure else 0) - table.n_free
             chi = max(chi, 0.0)  # rounding can leave a just-identified model a hair below zero (fit_indices)
             cfi, rmsea, srmr_ = (cfi_value(chi, df, base_chi, base_df), rmsea_value(chi, df, gm.n_obs),
