@@ -254,7 +254,12 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
                         f"('{printable(names[hi])}' {sds[hi]:.3g}, '{printable(names[lo])}' {sds[lo]:.3g}), too much to "
                         f"compute with accurately; put the items on comparable scales by multiplying or dividing columns "
                         f"by powers of ten (the fit does not change)")
-    corr = cov / np.outer(sds, sds)
+    _check_combinations(cov / np.outer(sds, sds), names, source)
+
+
+def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, among: str = "") -> None:
+    """Columns that are exact linear combinations of each other (a singular correlation matrix ``corr``) are an error
+    that names them; ``among`` says which rows the matrix is of, when not all."""
     # a column that is an exact combination of earlier ones has (next to) no variance left given them
     found = cholesky_log_det(corr)
     if found is not None and found[0].diagonal().min() ** 2 > 1e-8:
@@ -270,7 +275,7 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
         involved = [names[j] for j in np.argsort(-weights) if weights[j] > 0.1]
         raise DataError(
             f"{source}: the covariance matrix is singular: the columns {', '.join(repr(v) for v in involved)} are exact linear "
-            f"combinations of each other (for example one is the sum of others); drop one of them"
+            f"combinations of each other{among} (for example one is the sum of others); drop one of them"
         )
 
 
@@ -355,6 +360,14 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
         raise DataError(f"{source}: no row answers both '{names[i]}' and '{names[j]}', so their covariance cannot be estimated")
     # constant columns (and spreads too small or too unequal) among the answers given, named as complete rows do
     _check_moments(np.diag(np.nanvar(data, axis=0)), np.nanmean(data, axis=0), names, source)
+    # items that are exact combinations of others in the complete rows: the same message as the complete-rows path
+    # gives (the saturated model's likelihood then grows without bound, and its failure would blame the gaps)
+    whole = data[observed.all(axis=1)]
+    if len(whole) > p:
+        spread = whole.std(axis=0)
+        if spread.min() > 0:
+            _check_combinations(np.corrcoef(whole, rowvar=False), names, source,
+                                f" in the {len(whole)} rows that answer all {p} items")
     try:
         mu, sigma, _ = em_saturated(pattern_data(data, weights[answered] if weights is not None else None))
     except SingularCovariance as singular:  # a constant item or an exact combination: name them as complete rows do
