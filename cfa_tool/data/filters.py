@@ -119,7 +119,22 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         notes.append(f"row filter '{f}'{by_label} kept {len(frame)} of {before} rows{absent}")
         if len(frame) == 0:
             raise DataError(f"{source}: no row is left after the row filter '{printable(f)}'{absent}")
+    if filters:
+        frame = frame.copy()
+        frame.attrs[KEPT_BY] = tuple(f.text for f in filters)  # follows the frame through selections and groups
     return frame, notes
+
+
+#: the key of DataFrame.attrs that names the row filters a frame's rows were kept by
+KEPT_BY = "kept_by_row_filters"
+
+
+def rows_described(frame: pd.DataFrame) -> str:
+    """Which rows ``frame`` holds, for a message about what they lack: 'the 250 rows kept by --keep 'district =
+    north'', or 'the 480 rows' when no row filter was applied."""
+    filters = frame.attrs.get(KEPT_BY, ())
+    kept = " and ".join(f"'{printable(text)}'" for text in filters)
+    return f"the {len(frame)} {'row' if len(frame) == 1 else 'rows'}" + (f" kept by --keep {kept}" if filters else "")
 
 
 def _present(values: pd.Series, target, shown: int = 8) -> str:

@@ -199,8 +199,10 @@ SMALLEST_SPREAD = 1e-100
 LARGEST_SPREAD_RATIO = 1e15  # between the largest and smallest standard deviation of the model's columns
 
 
-def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, values: np.ndarray | None = None) -> np.ndarray:
-    """The named columns as floats (``values``: their :func:`item_values`, when already taken out), checked."""
+def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, values: np.ndarray | None = None,
+                  part: str = "") -> np.ndarray:
+    """The named columns as floats (``values``: their :func:`item_values`, when already taken out), checked.
+    ``part``: words after 'the N rows' saying which part of the file ``frame`` is (' of this group')."""
     if values is None:
         values = numeric_columns(frame, names, source)
     finite = bool(np.isfinite(values).all())
@@ -217,8 +219,16 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, valu
         if len(empty):
             listed = ", ".join(f"'{printable(names[j])}'" for j in empty[:5]) + (
                 f" and {len(empty) - 5} more" if len(empty) > 5 else "")
+            from cfa_tool.data.filters import KEPT_BY, rows_described
+
+            verb = 'have' if len(empty) > 1 else 'has'
+            if part or frame.attrs.get(KEPT_BY):  # a part of the file: its other rows may well answer the item
+                raise DataError(f"{source}: column{'s' if len(empty) > 1 else ''} {listed} {verb} no answers in "
+                                f"{rows_described(frame)}{part} (every cell of those rows is empty); take the "
+                                f"{'items' if len(empty) > 1 else 'item'} out of the model, or analyse rows that answer "
+                                f"{'them' if len(empty) > 1 else 'it'}")
             raise DataError(f"{source}: column{'s' if len(empty) > 1 else ''} {listed} "
-                            f"{'have' if len(empty) > 1 else 'has'} no answers at all (every cell is empty); "
+                            f"{verb} no answers at all (every cell is empty); "
                             f"check the data file, or take the item out of the model")
     with np.errstate(invalid="ignore"):
         if not len(values):
@@ -301,7 +311,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     file_source = source
     if group is not None:
         source = f"{source} (group {group})"
-    values = _numeric_rows(frame, names, source, values)
+    values = _numeric_rows(frame, names, source, values, "" if group is None else " of this group")
     w = pd.to_numeric(frame[weights]).to_numpy(dtype=float) if weights is not None else None
     p = values.shape[1]
     if missing == MissingData.FULL_INFORMATION:  # the member or its word
