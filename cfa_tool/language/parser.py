@@ -60,6 +60,10 @@ MODEL_SUFFIX = ".cfa"  # the extension of model files
 MAX_RANGE = 2_000  # names in one range such as item1..item9
 MAX_NAMES = 20_000  # names written by all ranges of one model
 MAX_PAIRS = 20_000  # pairs named by 'covary' and 'uncorrelated' in one model
+#: the largest size of an end of a declared answer scale ('reversed ... on LOW to HIGH'): scales of answers run from a
+#: few to some hundreds of points (0 to 100 for a slider), so ends beyond a million are typing errors, and their sums
+#: lose the answers' digits
+LARGEST_SCALE_END = 1e6
 
 
 def _clip(text: object, width: int = 40) -> str:
@@ -336,6 +340,11 @@ class _Builder:
                 near_zero.append((self.name(stmt.children[0]), self.name_list(stmt.children[1]), stmt))
             elif kind == "reversed_stmt":
                 low, high = self.number(stmt.children[1]), self.number(stmt.children[2])
+                for value, child in ((low, stmt.children[1]), (high, stmt.children[2])):
+                    if not abs(value) <= LARGEST_SCALE_END:  # also refuses a value too large to be a number
+                        raise self.error(f"the answer scale's end {value:g} is not a rating scale's answer; give the "
+                                         f"lowest and highest answers the items allow (such as 1 to 5), each between "
+                                         f"-{LARGEST_SCALE_END:,.0f} and {LARGEST_SCALE_END:,.0f}", child.children[0])
                 if low >= high:
                     raise self.error(f"the answer scale must run from a smaller to a larger number; got {low:g} to {high:g}",
                                      stmt.children[1].children[0])

@@ -154,6 +154,10 @@ def _error(text: str) -> ModelError:
         ("factor f: a, b, c\nscale f by effects\nfactor g: d\nfix variance(d) = 0\nname \"x\"\nname \"y\"\n", 6, 1, "already has a name"),
         ("factor f: a, b, c\nreversed b on 6 to 1\n", 2, 15, "from a smaller to a larger number; got 6 to 1"),
         ("factor f: a, b, c\nreversed b on 5 to 5\n", 2, 15, "from a smaller to a larger number"),
+        # hostile trial 7, H10c: 'on 1 to 1e308' was accepted (the keyed sum's mean printed with 76 digits)
+        ("factor f: a, b, c\nreversed b on 1 to 1e308\n", 2, 20, "the answer scale's end 1e+308 is not a rating "
+                                                                 "scale's answer"),
+        ("factor f: a, b, c\nreversed b on 2000000 to 2000004\n", 2, 15, "each between -1,000,000 and 1,000,000"),
         ("factor f: a, b, c\nreversed f on 1 to 5\n", 2, 10, "'f' is a factor; only items can be reverse-keyed"),
         ("factor f: a, b, c\nreversed z on 1 to 5\n", 2, 10, "'z' is not a factor or an indicator"),
         ("factor f: a, b, c\nreversed b on 1 to 5\nreversed c, b on 1 to 5\n", 3, 13, "'b' is declared reversed twice (first on line 2)"),
