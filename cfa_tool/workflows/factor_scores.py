@@ -594,6 +594,7 @@ def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
     labels = tuple(g["name"] for g in saved.payload.get("groups", ())) if multi else None
     another = OptionError(f"the fit result is not of the model {spec.source} (its estimates differ from the model's "
                           f"parameters); give the model file the fit was made with")
+    _same_item_names(spec, saved.data.variables)
     if saved.payload.get("ordinal_items"):
         return ordinal_models_of_estimates(spec, estimates, saved.data, labels, another)
     mean_structure = multi or any(e.get("kind") == "intercept" for e in estimates)
@@ -610,6 +611,25 @@ def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
         out.append(scoring_model(model.matrices(theta, g), table.observed, table.latent,
                                  labels[g] if labels else None, means))
     return out, list(labels) if labels else [None]
+
+
+def _same_item_names(spec, fitted: tuple[str, ...]) -> None:
+    """A saved fit's estimates belong to its items by name: a model whose items are named otherwise (the same scale
+    on a retest's columns, 'mood1_t2' for 'mood1') is refused naming the names that differ and what to do."""
+    here = [x for x in spec.observed_names if x not in fitted]
+    there = [x for x in fitted if x not in spec.observed_names]
+    if not here and not there:
+        return
+
+    def listed(names: list[str]) -> str:
+        return ", ".join(f"'{printable(x)}'" for x in names[:4]) + (f" and {len(names) - 4} more" if len(names) > 4
+                                                                    else "")
+    differ = (f"the model {spec.source} has {listed(here)} where the fit has {listed(there)}" if here and there else
+              f"the model {spec.source} has {listed(here)}, which the fit does not" if here else
+              f"the fit has {listed(there)}, which the model {spec.source} does not")
+    raise OptionError(f"the fit result's items are named otherwise than the model's ({differ}): its estimates belong "
+                      f"to its own items; give the model file the fit was made with, and to score other columns (such "
+                      f"as a retest's) with it, copy the data file with those columns renamed to the fit's item names")
 
 
 def _theta_of_estimates(table, estimates: list[dict], another: OptionError, derived=frozenset()) -> np.ndarray:
