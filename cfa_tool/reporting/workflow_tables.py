@@ -873,7 +873,9 @@ def population_parts(population) -> tuple[str, ReportTable]:
 
     entries = population.values()
     if population.fitted_from is not None:
-        line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}; the items' means are "
+        line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}"
+                + (" but the thresholds, which cut equally likely categories (--categories)"
+                   if population.equal_categories else "") + "; the items' means are "
                 f"{population.means_from.value}"
                 + (", and its values are in standard-deviation units (a correlation matrix without standard "
                    "deviations)" if population.standard_units else "")
@@ -894,6 +896,8 @@ def population_parts(population) -> tuple[str, ReportTable]:
     values = [[v["kind"], ", ".join(v["variables"]), v["value"], v["standardized"], v["from"]] for v in entries]
     words = ("From: earlier fit = its estimate" if population.fitted_from is not None else
              "From: default = the standardized default in the model's scaling; start = a 'start' statement")
+    if population.fitted_from is not None and population.equal_categories:
+        words += "; default = the thresholds of equally likely categories"
     if any(v["from"] in (ValueSource.FIXED.value, ValueSource.SCALE.value) for v in entries):
         words += "; fix = a 'fix' statement; scale (fixed) = fixed to give a factor its scale"
     words += "."
