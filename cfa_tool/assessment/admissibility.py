@@ -53,6 +53,8 @@ class ProblemKind(enum.Enum):
     SMALL_EFFECTIVE_SAMPLE = ("small effective sample", "small effective sample", False)
     # not of the solution but of the data: values in item columns that look like no answers (data.odd_values)
     VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
+    # not of the solution but of the data: an item answered by few of the rows (pipeline.inputs.with_odd_values)
+    FEW_ANSWERS = ("item answered by few rows", "answered by few rows", False)
     # a method or bifactor-like factor whose standardized loadings are all small (assessment.method_factors)
     WEAK_METHOD_FACTOR = ("weak method factor", "small loadings only", False)
 
@@ -103,6 +105,7 @@ class Problem:
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
             K.SMALL_EFFECTIVE_SAMPLE: f"an effective sample size of only {v} under the weights",
             K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
+            K.FEW_ANSWERS: "items answered by few of the rows",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
         }[self.kind]

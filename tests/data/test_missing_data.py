@@ -319,3 +319,23 @@ def test_an_item_that_is_the_sum_of_two_others_is_named_whatever_the_path_for_ga
         done = run(*command, "--data", str(path))
         assert done.returncode == 2, done.stderr
         assert "exact linear combinations" in done.stderr and len(done.stderr.strip().splitlines()) == 1
+
+
+def test_an_item_answered_by_few_rows_is_named_first():
+    # hostile trial 7, H10d: an item answered by 5 of 480 rows drove SRMR .171 and CFI .897, and the only word was
+    # '(each item answered in at least 1% of the rows)' in the paragraph. Invented data: 'e' answered by 15 of 200
+    # rows, 'd' by half of them (no caution for it).
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    rng = np.random.default_rng(3)
+    trait = rng.normal(size=200)
+    data = pd.DataFrame({name: trait + rng.normal(scale=0.8, size=200) for name in "abcde"})
+    data.loc[15:, "e"] = np.nan
+    data.loc[100:, "d"] = np.nan
+    result = cfa_tool.fit("factor f: a, b, c, d, e\n", data)
+    first = result.problems[0]
+    assert first.kind is ProblemKind.FEW_ANSWERS and not first.kind.inadmissible and result.admissible
+    assert "Few rows answer the item 'e' (15 of 200 rows)" in first.explanation and "'d'" not in first.explanation
+    assert sum(p.kind is ProblemKind.FEW_ANSWERS for p in result.problems) == 1
+    assert result.to_dict()["problems"][0]["kind"] == "item answered by few rows"
+    assert not any(p.kind is ProblemKind.FEW_ANSWERS for p in cfa_tool.fit("factor f: a, b, c, d\n", data).problems)
