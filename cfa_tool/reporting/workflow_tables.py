@@ -149,7 +149,8 @@ def boundary_note(tests) -> str:
                    f"distributions with {mixture[0].df_difference - 1} and {mixture[0].df_difference} df (Self & Liang "
                    f"1987; Stram & Lee 1994), which gives {found}"
                    + (" (for the scaled differences as an approximation)" if len(mixture) > 1 else "")
-                   + ": read those, not the p-values marked *.")
+                   + f": read {'that' if len(mixture) == 1 else 'those'}, not the "
+                   + ("p-value" if sum(not t.not_computed for t in tests) == 1 else "p-values") + " marked *.")
     else:
         reading = ("Its distribution depends on the model here (several parameters on the boundary, or loadings that the "
                    "restricted model leaves undefined), so no exact p-value is given: read the p-values marked * as "
@@ -247,9 +248,11 @@ def comparison_report(comparison) -> Report:
     if comparison.tests:
         notes.append(f"{ORDINAL_FIT_CHANGE[0].upper()}{ORDINAL_FIT_CHANGE[1:]}." if ordinal
                      else CHANGE_GUIDES if comparison.change_guides_apply else CHANGES_DESCRIBED)
-    notes += list(comparison.notes)
+    # the notes on the data and the estimation (answers outside a scale, codes read as labels) come under the lines,
+    # first, as fit and invariance give them
     return Report(ResultKind.COMPARE, "Model comparison", _notice(problems, cautions), lines, tuple(tables),
-                  tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), comparison_paragraph(comparison))
+                  tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), comparison_paragraph(comparison),
+                  warnings=tuple(comparison.notes))
 
 
 # ---------------------------------------------------------------- invariance
