@@ -213,14 +213,17 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, valu
             raise DataError(f"{source}: column '{printable(names[col])}' has an infinite value in data row "
                             f"{row_numbers(frame)[row]}")
         empty = np.flatnonzero(np.isnan(values).all(axis=0))
+        from cfa_tool.data.filters import KEPT_BY, rows_described
+
+        if len(empty) == len(names) and len(names) > 1 and not part and frame.attrs.get(KEPT_BY):
+            raise DataError(f"{source}: none of {rows_described(frame)} answers any of the model's {len(names)} "
+                            f"variables (every cell of those rows is empty); keep other rows")
         if len(empty) == len(names) and len(names) > 1:
             raise DataError(f"{source}: no row answers any of the model's {len(names)} variables (every cell is empty); "
                             f"check the data file, or leave these rows out (--keep)")
         if len(empty):
             listed = ", ".join(f"'{printable(names[j])}'" for j in empty[:5]) + (
                 f" and {len(empty) - 5} more" if len(empty) > 5 else "")
-            from cfa_tool.data.filters import KEPT_BY, rows_described
-
             verb = 'have' if len(empty) > 1 else 'has'
             if part or frame.attrs.get(KEPT_BY):  # a part of the file: its other rows may well answer the item
                 raise DataError(f"{source}: column{'s' if len(empty) > 1 else ''} {listed} {verb} no answers in "

@@ -155,6 +155,9 @@ def test_an_item_empty_only_in_the_rows_kept_is_not_called_empty_in_the_file():
     with pytest.raises(DataError, match="0 of the 40 rows kept by --keep 'site = east' answered item 'c', so its "
                                         "thresholds cannot be estimated"):
         cfa_tool.fit(MODEL, coded, keep=["site = east"], ordinal="all")
+    with pytest.raises(DataError, match=r"none of the 40 rows kept by --keep 'site = east' answers any of the "
+                                        r"model's 3 variables"):
+        cfa_tool.fit(MODEL, data.assign(a=np.nan, b=np.nan), keep=["site = east"])
     # the whole file without answers keeps its own words
     with pytest.raises(DataError, match="column 'c' has no answers at all"):
         cfa_tool.fit(MODEL, data.assign(c=np.nan))
