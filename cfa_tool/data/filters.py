@@ -13,6 +13,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.kept_rows import KEPT_BY
 from cfa_tool.data.labels import label_text
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.numbers import number
@@ -124,17 +125,6 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         frame.attrs[KEPT_BY] = tuple(f.text for f in filters)  # follows the frame through selections and groups
     return frame, notes
 
-
-#: the key of DataFrame.attrs that names the row filters a frame's rows were kept by
-KEPT_BY = "kept_by_row_filters"
-
-
-def rows_described(frame: pd.DataFrame) -> str:
-    """Which rows ``frame`` holds, for a message about what they lack: 'the 250 rows kept by --keep 'district =
-    north'', or 'the 480 rows' when no row filter was applied."""
-    filters = frame.attrs.get(KEPT_BY, ())
-    kept = " and ".join(f"'{printable(text)}'" for text in filters)
-    return f"the {len(frame)} {'row' if len(frame) == 1 else 'rows'}" + (f" kept by --keep {kept}" if filters else "")
 
 
 def _present(values: pd.Series, target, shown: int = 8) -> str:

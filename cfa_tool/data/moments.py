@@ -213,7 +213,7 @@ def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, valu
             raise DataError(f"{source}: column '{printable(names[col])}' has an infinite value in data row "
                             f"{row_numbers(frame)[row]}")
         empty = np.flatnonzero(np.isnan(values).all(axis=0))
-        from cfa_tool.data.filters import KEPT_BY, rows_described
+        from cfa_tool.data.kept_rows import KEPT_BY, rows_described
 
         if len(empty) == len(names) and len(names) > 1 and not part and frame.attrs.get(KEPT_BY):
             raise DataError(f"{source}: none of {rows_described(frame)} answers any of the model's {len(names)} "

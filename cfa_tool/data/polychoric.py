@@ -319,7 +319,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         i, j = (alone[0], alone[0]) if len(alone) else np.argwhere(pair_counts < 2)[0]
         which = (f"item '{printable(names[i])}'" if i == j
                  else f"both '{printable(names[i])}' and '{printable(names[j])}'")
-        from cfa_tool.data.filters import rows_described
+        from cfa_tool.data.kept_rows import rows_described
 
         raise DataError(f"{source}{where}: {int(pair_counts[i, j])} of {rows_described(frame)} answered {which}, so "
                         f"{'its thresholds' if i == j else 'their correlation'} cannot be estimated; drop an item or "
