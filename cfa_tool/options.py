@@ -95,7 +95,8 @@ def observations(value: object, name: str = "the number of observations", minimu
 
 def sample_sizes(value: object, name: str = "the sample size") -> tuple[int, ...]:
     """One sample size or several: a whole number, a list of them, or text such as '100,200,400'
-    (each at least 1, none repeated), in the order given."""
+    (each at least 1, none repeated), from the smallest to the largest whatever the order typed (a table of power
+    by sample size reads left to right)."""
     if isinstance(value, str):
         parts = [part.strip() for part in value.split(",")]
         if not all(part.isdigit() for part in parts):
@@ -108,4 +109,4 @@ def sample_sizes(value: object, name: str = "the sample size") -> tuple[int, ...
     if len(set(sizes)) < len(sizes):
         twice = next(s for s in sizes if sizes.count(s) > 1)
         raise OptionError(f"{name} {twice} is given twice; give each sample size once")
-    return sizes
+    return tuple(sorted(sizes))

@@ -57,6 +57,8 @@ class ProblemKind(enum.Enum):
     VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
     # values the data file itself marks as no answer, read as missing (data.non_answers): said, not a problem
     VALUES_READ_AS_MISSING = ("values the file marks as no answer", "read as missing", False)
+    # not of the solution but of the data: an item answered by few of the rows (pipeline.inputs.with_odd_values)
+    FEW_ANSWERS = ("item answered by few rows", "answered by few rows", False)
     # a method or bifactor-like factor whose standardized loadings are all small (assessment.method_factors)
     WEAK_METHOD_FACTOR = ("weak method factor", "small loadings only", False)
     # a factor whose loadings mostly run against its items' keying (assessment.reliability.keying_problems): its
@@ -117,6 +119,7 @@ class Problem:
             K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",
+            K.FEW_ANSWERS: "items answered by few of the rows",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
             K.FACTOR_POINTS_AGAINST_ITEMS: f"factor {', '.join(names)} pointing against its items (a higher score "

@@ -140,8 +140,10 @@ REFITS_AS_THE_FIT = "; every refit treats the rows as the fit does"
 
 def add_incomplete_rows_option(p: argparse.ArgumentParser, where: str = "") -> None:
     p.add_argument("--incomplete-rows", dest="missing", choices=MissingData.words(), default=None,
-                   help="rows with some answers missing: kept and used by full-information ML (the default when a model "
-                        f"variable has gaps) or left out (listwise){where}")
+                   help="rows with some answers missing: kept and used by full-information ML (the default for "
+                        "continuous items when a model variable has gaps; ordinal items keep them by default through "
+                        "pairwise present rows, each correlation from the rows that answered both items) or left out "
+                        f"(listwise){where}")
     add_renamed(p, "--missing", "choose what happens to rows with gaps with --incomplete-rows "
                                  + "|".join(MissingData.words()))
 

@@ -19,7 +19,8 @@ def add_parser(sub) -> None:
                    help="comma-separated: regression (default), bartlett, correlation-preserving; ordinal items are "
                         "always scored by their posterior mean with its standard deviation")
     p.add_argument("--standard-errors", action="store_true",
-                   help="also write each score's standard error (for regression scores the posterior standard deviation)")
+                   help="also write each score's standard error (for regression scores the posterior standard deviation); "
+                        "ordinal items always have theirs written, so the option is not given with them")
     p.add_argument("--id", metavar="COLUMN", help="column written first to name each row (never analysed); default: "
                                                   "the file's row names, when its first header cell is empty")
     O.add_data_options(p)

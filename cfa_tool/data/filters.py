@@ -15,6 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.kept_rows import KEPT_BY
 from cfa_tool.data.labels import label_text
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.numbers import number
@@ -130,7 +131,11 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         notes.append(f"row filter '{f}'{by_label} kept {len(frame)} of {before} rows{absent}")
         if len(frame) == 0:
             raise DataError(f"{source}: no row is left after the row filter '{printable(f)}'{absent}")
+    if filters:
+        frame = frame.copy()
+        frame.attrs[KEPT_BY] = tuple(f.text for f in filters)  # follows the frame through selections and groups
     return frame, notes
+
 
 
 def _present(values: pd.Series, target, shown: int = 8) -> str:

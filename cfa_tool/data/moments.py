@@ -195,13 +195,15 @@ SMALLEST_SPREAD = 1e-100
 LARGEST_SPREAD_RATIO = 1e15  # between the largest and smallest standard deviation of the model's columns
 
 
-def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, values: np.ndarray | None = None) -> np.ndarray:
-    """The named columns as floats (``values``: their :func:`item_values`, when already taken out), checked."""
-    return _checked_rows(frame, names, source, values)[0]
+def _numeric_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str, values: np.ndarray | None = None,
+                  part: str = "") -> np.ndarray:
+    """The named columns as floats (``values``: their :func:`item_values`, when already taken out), checked.
+    ``part``: words after 'the N rows' saying which part of the file ``frame`` is (' of this group')."""
+    return _checked_rows(frame, names, source, values, part)[0]
 
 
 def _checked_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str,
-                  values: np.ndarray | None) -> tuple[np.ndarray, bool]:
+                  values: np.ndarray | None, part: str = "") -> tuple[np.ndarray, bool]:
     """:func:`_numeric_rows` and whether every cell holds a number (no gaps)."""
     if values is None:
         values = numeric_columns(frame, names, source)
@@ -213,14 +215,25 @@ def _checked_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             raise DataError(f"{source}: column '{printable(names[col])}' has an infinite value in data row "
                             f"{row_numbers(frame)[row]}")
         empty = np.flatnonzero(np.isnan(values).all(axis=0))
+        from cfa_tool.data.kept_rows import KEPT_BY, rows_described
+
+        if len(empty) == len(names) and len(names) > 1 and not part and frame.attrs.get(KEPT_BY):
+            raise DataError(f"{source}: none of {rows_described(frame)} answers any of the model's {len(names)} "
+                            f"variables (every cell of those rows is empty); keep other rows")
         if len(empty) == len(names) and len(names) > 1:
             raise DataError(f"{source}: no row answers any of the model's {len(names)} variables (every cell is empty); "
                             f"check the data file, or leave these rows out (--keep)")
         if len(empty):
             listed = ", ".join(f"'{printable(names[j])}'" for j in empty[:5]) + (
                 f" and {len(empty) - 5} more" if len(empty) > 5 else "")
+            verb = 'have' if len(empty) > 1 else 'has'
+            if part or frame.attrs.get(KEPT_BY):  # a part of the file: its other rows may well answer the item
+                raise DataError(f"{source}: column{'s' if len(empty) > 1 else ''} {listed} {verb} no answers in "
+                                f"{rows_described(frame)}{part} (every cell of those rows is empty); take the "
+                                f"{'items' if len(empty) > 1 else 'item'} out of the model, or analyse rows that answer "
+                                f"{'them' if len(empty) > 1 else 'it'}")
             raise DataError(f"{source}: column{'s' if len(empty) > 1 else ''} {listed} "
-                            f"{'have' if len(empty) > 1 else 'has'} no answers at all (every cell is empty); "
+                            f"{verb} no answers at all (every cell is empty); "
                             f"check the data file, or take the item out of the model")
     with np.errstate(invalid="ignore"):
         if not len(values):
@@ -258,7 +271,12 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
                         f"('{printable(names[hi])}' {sds[hi]:.3g}, '{printable(names[lo])}' {sds[lo]:.3g}), too much to "
                         f"compute with accurately; put the items on comparable scales by multiplying or dividing columns "
                         f"by powers of ten (the fit does not change)")
-    corr = cov / np.outer(sds, sds)
+    _check_combinations(cov / np.outer(sds, sds), names, source)
+
+
+def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, among: str = "") -> None:
+    """Columns that are exact linear combinations of each other (a singular correlation matrix ``corr``) are an error
+    that names them; ``among`` says which rows the matrix is of, when not all."""
     # a column that is an exact combination of earlier ones has (next to) no variance left given them
     found = cholesky_log_det(corr)
     if found is not None and found[0].diagonal().min() ** 2 > 1e-8:
@@ -274,7 +292,7 @@ def _check_moments(cov: np.ndarray, means: np.ndarray, names: tuple[str, ...], s
         involved = [names[j] for j in np.argsort(-weights) if weights[j] > 0.1]
         raise DataError(
             f"{source}: the covariance matrix is singular: the columns {', '.join(repr(v) for v in involved)} are exact linear "
-            f"combinations of each other (for example one is the sum of others); drop one of them"
+            f"combinations of each other{among} (for example one is the sum of others); drop one of them"
         )
 
 
@@ -300,7 +318,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     file_source = source
     if group is not None:
         source = f"{source} (group {group})"
-    values, finite = _checked_rows(frame, names, source, values)
+    values, finite = _checked_rows(frame, names, source, values, "" if group is None else " of this group")
     w = pd.to_numeric(frame[weights]).to_numpy(dtype=float) if weights is not None else None
     p = values.shape[1]
     if missing == MissingData.FULL_INFORMATION:  # the member or its word
@@ -359,6 +377,14 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
         raise DataError(f"{source}: no row answers both '{names[i]}' and '{names[j]}', so their covariance cannot be estimated")
     # constant columns (and spreads too small or too unequal) among the answers given, named as complete rows do
     _check_moments(np.diag(np.nanvar(data, axis=0)), np.nanmean(data, axis=0), names, source)
+    # items that are exact combinations of others in the complete rows: the same message as the complete-rows path
+    # gives (the saturated model's likelihood then grows without bound, and its failure would blame the gaps)
+    whole = data[observed.all(axis=1)]
+    if len(whole) > p:
+        spread = whole.std(axis=0)
+        if spread.min() > 0:
+            _check_combinations(np.corrcoef(whole, rowvar=False), names, source,
+                                f" in the {len(whole)} rows that answer all {p} items")
     try:
         mu, sigma, _ = em_saturated(pattern_data(data, weights[answered] if weights is not None else None))
     except SingularCovariance as singular:  # a constant item or an exact combination: name them as complete rows do

@@ -319,10 +319,13 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         raise DataError(f"{source}{where}: {n} {kind} {'row' if n == 1 else 'rows'} for {p} items; more rows are needed")
     pair_counts = present.T.astype(np.int64) @ present.astype(np.int64)  # rows answering both items (diagonal: each)
     if pairwise and (pair_counts < 2).any():
-        i, j = np.argwhere(pair_counts < 2)[0]
+        alone = np.flatnonzero(pair_counts.diagonal() < 2)  # an item hardly answered is named before its pairs
+        i, j = (alone[0], alone[0]) if len(alone) else np.argwhere(pair_counts < 2)[0]
         which = (f"item '{printable(names[i])}'" if i == j
                  else f"both '{printable(names[i])}' and '{printable(names[j])}'")
-        raise DataError(f"{source}{where}: {int(pair_counts[i, j])} rows answered {which}, so "
+        from cfa_tool.data.kept_rows import rows_described
+
+        raise DataError(f"{source}{where}: {int(pair_counts[i, j])} of {rows_described(frame)} answered {which}, so "
                         f"{'its thresholds' if i == j else 'their correlation'} cannot be estimated; drop an item or "
                         f"collect more answers")
     codes = np.where(present, 0, -1)  # -1: no answer

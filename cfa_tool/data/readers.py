@@ -166,20 +166,25 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if merged:
         raise DataError(f"{where}: the header row has merged cells ({merged[0]}); "
                         f"give every column its own name in one header row")
+    # columns empty in every row (the table starts further right, as in column B) are no part of the table
+    skipped = next((k for k in range(max(map(len, rows), default=0))
+                    if any(k < len(r) and r[k] not in (None, "") for r in rows)), 0)
+    rows = [r[skipped:] for r in rows]
     header = [None if h is None else str(h).strip() for h in rows[0]]
     while header and header[-1] in (None, ""):
         header.pop()
     row_names = len(header) > 1 and not header[0]
-    for position, name in enumerate(header, start=1):
-        if not name and not (position == 1 and row_names):
+    for position, name in enumerate(header, start=1 + skipped):
+        if not name and not (position == 1 + skipped and row_names):
             raise DataError(f"{path} (sheet '{ws.title}'): column {position} of the header row has no name")
     _check_duplicates(header, f"{path} (sheet '{ws.title}')")
     width = len(header)
     for number, r in enumerate(rows[1:], start=first + 2):
-        beyond = [k for k, v in enumerate(r[width:], start=width + 1) if v not in (None, "")]
+        beyond = [k for k, v in enumerate(r[width:], start=width + 1 + skipped) if v not in (None, "")]
         if beyond:
             raise DataError(f"{path} (sheet '{ws.title}'): row {number} has a value in column {beyond[0]}, which has "
                             f"no name in the header row ({_header_taken(f'row {first + 1}')})")
+    _check_merged_answers(ws, where, header, first + 2, skipped)
     body = [list(r[:width]) for r in rows[1:] if any(v is not None for v in r[:width])]
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
@@ -201,6 +206,22 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
 
 
 MAX_EXCEL_CELLS = 20_000_000
+
+
+def _check_merged_answers(ws, where: str, header: list, body_row: int, skipped: int) -> None:
+    """Merged cells among the answers (sheet row ``body_row`` on) are refused: a merged range keeps its value in its
+    first cell only, so its other cells would be read as missing answers while the sheet shows a value in them.
+    Filling them would guess what the merge meant (one answer shared by several rows, or a layout), so the
+    researcher is asked to unmerge and fill them."""
+    for rng in sorted(ws.merged_cells.ranges, key=lambda r: (r.min_row, r.min_col)):
+        if rng.max_row < body_row or rng.max_col <= skipped or rng.min_col > skipped + len(header):
+            continue
+        if ws.cell(rng.min_row, rng.min_col).value in (None, ""):
+            continue  # an empty merged range: every cell is empty as shown
+        column = header[max(rng.min_col - skipped, 1) - 1]
+        raise DataError(f"{where}: cells {rng.coord} of column '{printable(column or '')}' are merged, so only the "
+                        f"first holds the value shown and the others would be read as missing; unmerge them and fill "
+                        f"every cell")
 
 
 def _title_above_header(rows: list) -> str | None:
@@ -424,7 +445,9 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     empty = widest - len(header)
     if empty and notes is not None:
         notes.append(f"{path}: empty fields at the end of the lines (a delimiter after the last value) were ignored")
-    if has_row_names:
+    if has_row_names and frame.iloc[:, 0].isna().all():
+        frame = frame.iloc[:, 1:]  # a first column empty in every line (a delimiter at the start) holds no row names
+    elif has_row_names:
         frame = _split_row_names(frame, row_names)
         if notes is not None:
             notes.append(f"{path}: the first column has no name in the header and was read as row names, not as data")

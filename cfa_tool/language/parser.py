@@ -60,6 +60,10 @@ MODEL_SUFFIX = ".cfa"  # the extension of model files
 MAX_RANGE = 2_000  # names in one range such as item1..item9
 MAX_NAMES = 20_000  # names written by all ranges of one model
 MAX_PAIRS = 20_000  # pairs named by 'covary' and 'uncorrelated' in one model
+#: the largest size of an end of a declared answer scale ('reversed ... on LOW to HIGH'): scales of answers run from a
+#: few to some hundreds of points (0 to 100 for a slider), so ends beyond a million are typing errors, and their sums
+#: lose the answers' digits
+LARGEST_SCALE_END = 1e6
 
 
 def _clip(text: object, width: int = 40) -> str:
@@ -336,6 +340,11 @@ class _Builder:
                 near_zero.append((self.name(stmt.children[0]), self.name_list(stmt.children[1]), stmt))
             elif kind == "reversed_stmt":
                 low, high = self.number(stmt.children[1]), self.number(stmt.children[2])
+                for value, child in ((low, stmt.children[1]), (high, stmt.children[2])):
+                    if not abs(value) <= LARGEST_SCALE_END:  # also refuses a value too large to be a number
+                        raise self.error(f"the answer scale's end {value:g} is not a rating scale's answer; give the "
+                                         f"lowest and highest answers the items allow (such as 1 to 5), each between "
+                                         f"-{LARGEST_SCALE_END:,.0f} and {LARGEST_SCALE_END:,.0f}", child.children[0])
                 if low >= high:
                     raise self.error(f"the answer scale must run from a smaller to a larger number; got {low:g} to {high:g}",
                                      stmt.children[1].children[0])
@@ -533,26 +542,37 @@ class _Builder:
         ends = node.children
         first, last = (self.name(end).text for end in ends)
         at = ends[0].children[0]
-        pattern = re.compile(r"^(.*?)(\d+)$")
-        m1, m2 = pattern.match(str(first)), pattern.match(str(last))
-        if not m1 or not m2:
-            raise self.error(f"a range such as 'item1..item9' needs names ending in numbers; got '{first}..{last}'", at)
-        if m1.group(1) != m2.group(1):
-            raise self.error(f"the two ends of the range '{first}..{last}' must share the prefix before the number", at)
-        if max(len(m1.group(2)), len(m2.group(2))) > 9:
+        prefix, low, high, suffix = self._counted_part(str(first), str(last), at)
+        if max(len(low), len(high)) > 9:
             raise self.error(f"the numbers of the range '{_clip(first)}..{_clip(last)}' are too long (at most 9 digits)", at)
-        lo, hi = int(m1.group(2)), int(m2.group(2))
+        lo, hi = int(low), int(high)
         if lo > hi:
             raise self.error(f"the range '{first}..{last}' counts down; write the smaller number first", at)
         if hi - lo >= MAX_RANGE:
             raise self.error(f"the range '{first}..{last}' names {hi - lo + 1:,} variables; a range names at most "
                              f"{MAX_RANGE:,}", at)
-        width = len(m1.group(2)) if m1.group(2).startswith("0") else 0
+        width = len(low) if low.startswith("0") else 0
         location = self.loc(at)
         self.expanded += hi - lo + 1
         if self.expanded > MAX_NAMES:
             raise self.error(f"the ranges of this model name more than {MAX_NAMES:,} variables in all", at)
-        return [Name(f"{m1.group(1)}{str(i).zfill(width)}", location) for i in range(lo, hi + 1)]
+        return [Name(f"{prefix}{str(i).zfill(width)}{suffix}", location) for i in range(lo, hi + 1)]
+
+    def _counted_part(self, first: str, last: str, at) -> tuple[str, str, str, str]:
+        """The text before the counted number, the number at each end (as written) and the text after it: the one
+        place where the ends differ ('mood1_t2..mood5_t2' counts 1 to 5 before '_t2'), or the last number of a
+        range whose two ends are the same name."""
+        parts1, parts2 = re.findall(r"\d+|\D+", first), re.findall(r"\d+|\D+", last)
+        numbers = [k for k, part in enumerate(parts1) if part[0].isdigit()]
+        if not numbers or not any(part[0].isdigit() for part in parts2):
+            raise self.error(f"a range such as 'item1..item9' needs names with a number to count; got "
+                             f"'{first}..{last}'", at)
+        differ = [k for k, (a, b) in enumerate(zip(parts1, parts2)) if a != b]
+        if len(parts1) != len(parts2) or len(differ) > 1 or (differ and not parts1[differ[0]][0].isdigit()):
+            raise self.error(f"the two ends of the range '{first}..{last}' must be the same name but for one number "
+                             f"(such as 'item1..item9' or 'mood1_t2..mood5_t2')", at)
+        k = differ[0] if differ else numbers[-1]
+        return "".join(parts1[:k]), parts1[k], parts2[k], "".join(parts1[k + 1:])
 
     def refs(self, node: Tree) -> tuple[ParameterRef, ...]:
         refs = []

@@ -346,10 +346,37 @@ def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answe
 
 
 def with_odd_values(result, loaded: LoadedData):
-    """``result`` (anything with ``problems``) with the cautions of :func:`odd_value_problems` before its own:
-    the fit is not refused, since the user may know better."""
-    found = tuple(p for p in odd_value_problems(loaded) if p not in result.problems)  # said once (scores of the
-    return replace(result, problems=found + tuple(result.problems)) if found else result  # fitted file, say)
+    """``result`` (anything with ``problems``) with the cautions about its data before its own: those of
+    :func:`odd_value_problems` and of :func:`few_answers_problems`; the fit is not refused, since the user may know
+    better."""
+    found = tuple(p for p in odd_value_problems(loaded) + few_answers_problems(result)
+                  if p not in result.problems)  # said once (scores of the fitted file, say)
+    return replace(result, problems=found + tuple(result.problems)) if found else result
+
+
+#: an item answered by fewer than this share of the rows analysed is named in a caution first: its variance and
+#: covariances rest on those few answers (a rule of thumb of this project, not a published cutoff)
+FEW_ANSWERS_SHARE = 0.10
+
+
+def few_answers_problems(result) -> tuple:
+    """A caution naming the items answered by fewer than :data:`FEW_ANSWERS_SHARE` of the rows analysed (the
+    result's missing-data coverage; an item answered by 5 of 480 rows can drive the fit indices alone)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    coverage = (getattr(result, "missing_data", None) or {}).get("coverage", {})
+    few = {x: share for x, share in coverage.items() if share < FEW_ANSWERS_SHARE}
+    if not few:
+        return ()
+    n = result.n_obs
+    listed = ", ".join(f"'{printable(x)}' ({round(share * n)} of {n} rows)" for x, share in list(few.items())[:5]) + (
+        f" and {len(few) - 5} more" if len(few) > 5 else "")
+    one = len(few) == 1
+    return (Problem(ProblemKind.FEW_ANSWERS, (), min(few.values()),
+                    f"Few rows answer {'the item' if one else 'the items'} {listed}: {'its' if one else 'their'} "
+                    f"variance, covariances and loading rest on those answers alone, and can drive the fit indices.",
+                    f"leave {'it' if one else 'them'} out of the model, or check why so few rows answer "
+                    f"{'it' if one else 'them'} (a question put to a few respondents only, an import that lost answers)."),)
 
 
 def analysed_odd_values(loaded: LoadedData, spec: Spec, group: str | None) -> LoadedData:

@@ -163,7 +163,8 @@ def boundary_note(tests) -> str:
                    f"distributions with {mixture[0].df_difference - 1} and {mixture[0].df_difference} df (Self & Liang "
                    f"1987; Stram & Lee 1994), which gives {found}"
                    + (" (for the scaled differences as an approximation)" if len(mixture) > 1 else "")
-                   + ": read those, not the p-values marked *.")
+                   + f": read {'that' if len(mixture) == 1 else 'those'}, not the "
+                   + ("p-value" if sum(not t.not_computed for t in tests) == 1 else "p-values") + " marked *.")
     else:
         reading = ("Its distribution depends on the model here (several parameters on the boundary, or loadings that the "
                    "restricted model leaves undefined), so no exact p-value is given: read the p-values marked * as "
@@ -261,9 +262,11 @@ def comparison_report(comparison) -> Report:
     if comparison.tests:
         notes.append(f"{ORDINAL_FIT_CHANGE[0].upper()}{ORDINAL_FIT_CHANGE[1:]}." if ordinal
                      else CHANGE_GUIDES if comparison.change_guides_apply else CHANGES_DESCRIBED)
-    notes += list(comparison.notes)
+    # the notes on the data and the estimation (answers outside a scale, codes read as labels) come under the lines,
+    # first, as fit and invariance give them
     return Report(ResultKind.COMPARE, "Model comparison", _notice(problems, cautions), lines, tuple(tables),
-                  tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), comparison_paragraph(comparison))
+                  tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), comparison_paragraph(comparison),
+                  warnings=tuple(comparison.notes))
 
 
 # ---------------------------------------------------------------- invariance
@@ -889,7 +892,9 @@ def population_parts(population) -> tuple[str, ReportTable]:
 
     entries = population.values()
     if population.fitted_from is not None:
-        line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}; the items' means are "
+        line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}"
+                + (" but the thresholds, which cut equally likely categories (--categories)"
+                   if population.equal_categories else "") + "; the items' means are "
                 f"{population.means_from.value}"
                 + (", and its values are in standard-deviation units (a correlation matrix without standard "
                    "deviations)" if population.standard_units else "")
@@ -910,6 +915,8 @@ def population_parts(population) -> tuple[str, ReportTable]:
     values = [[v["kind"], ", ".join(v["variables"]), v["value"], v["standardized"], v["from"]] for v in entries]
     words = ("From: earlier fit = its estimate" if population.fitted_from is not None else
              "From: default = the standardized default in the model's scaling; start = a 'start' statement")
+    if population.fitted_from is not None and population.equal_categories:
+        words += "; default = the thresholds of equally likely categories"
     if any(v["from"] in (ValueSource.FIXED.value, ValueSource.SCALE.value) for v in entries):
         words += "; fix = a 'fix' statement; scale (fixed) = fixed to give a factor its scale"
     words += "."

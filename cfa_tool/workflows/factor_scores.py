@@ -263,9 +263,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                           "that every row can be scored in its place")
     ids = row_ids(read_frame, source, id_column, spec.observed_names, group, loaded.row_names)
     ordinal_items = api.ordinal_items_of(spec, ordinal)
-    if ordinal_items and methods is not None:
-        raise OptionError("ordinal items are scored by their posterior mean (with its standard deviation), so a "
-                          "scoring method cannot be chosen; remove that option")
+    if ordinal_items:
+        _ordinal_choices(methods, standard_errors, "")
     design = design_columns(weights, cluster, strata, weight_kind)
     loaded = api.analysed_odd_values(loaded, spec, group)
     with api.odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
@@ -405,7 +404,7 @@ def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bo
         raise OptionError(f"scores need a fit result (cfa_tool.fit), not {type(result).__name__}")
     if not result.admissible:
         raise EstimationError("the fitted solution is not admissible, so no factor scores are computed with it")
-    chosen = _saved_methods(methods, result.method.ordinal)
+    chosen = _saved_methods(methods, result.method.ordinal, standard_errors)
     models, labels = models_of_fit(result)
     return _score_other_data(result, _spec_of(result), models, labels, data, chosen, standard_errors, id_column, sheet,
                              missing_codes, keep)
@@ -511,14 +510,23 @@ def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: st
                             f"estimated thresholds for ({', '.join(f'{v:g}' for v in cats)}); recode it or leave it out")
 
 
-def _saved_methods(methods, ordinal: bool) -> tuple[ScoreMethod, ...]:
+def _saved_methods(methods, ordinal: bool, standard_errors: bool = False) -> tuple[ScoreMethod, ...]:
     """The scoring methods for an earlier fit: ordinal items have one, the posterior mean."""
     if not ordinal:
         return method_option(methods)
-    if methods is not None:
-        raise OptionError("the earlier fit has ordinal items, which are scored by their posterior mean (with its "
-                          "standard deviation), so a scoring method cannot be chosen; remove that option")
+    _ordinal_choices(methods, standard_errors, "the earlier fit has ordinal items, which are")
     return (ScoreMethod.EXPECTED_A_POSTERIORI,)
+
+
+def _ordinal_choices(methods, standard_errors: bool, whose: str) -> None:
+    """Ordinal items are scored one way, by their posterior mean with its standard deviation always beside it: a
+    scoring method or a request for standard errors cannot apply (one rule for both)."""
+    scored = f"{whose or 'ordinal items are'} scored by their posterior mean, always written with its standard deviation"
+    if methods is not None:
+        raise OptionError(f"{scored}, so a scoring method cannot be chosen; remove that option")
+    if standard_errors:
+        raise OptionError(f"{scored} (the score's standard error), so standard errors cannot be asked for; remove "
+                          f"that option")
 
 
 @dataclass(frozen=True, eq=False)
@@ -593,6 +601,7 @@ def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
     rows = saved_rows(saved.payload["estimates"], saved.source)
     multi = saved.group_column is not None
     labels = tuple(g["name"] for g in saved.payload.get("groups", ())) if multi else None
+    _same_item_names(spec, saved.data.variables)
     if saved.payload.get("ordinal_items"):
         return ordinal_models_of_estimates(spec, rows, saved.data, labels, saved.source)
     mean_structure = multi or any(row.kind == "intercept" for row in rows)
@@ -607,6 +616,25 @@ def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
         out.append(scoring_model(model.matrices(theta, g), table.observed, table.latent,
                                  labels[g] if labels else None, means))
     return out, list(labels) if labels else [None]
+
+
+def _same_item_names(spec, fitted: tuple[str, ...]) -> None:
+    """A saved fit's estimates belong to its items by name: a model whose items are named otherwise (the same scale
+    on a retest's columns, 'mood1_t2' for 'mood1') is refused naming the names that differ and what to do."""
+    here = [x for x in spec.observed_names if x not in fitted]
+    there = [x for x in fitted if x not in spec.observed_names]
+    if not here and not there:
+        return
+
+    def listed(names: list[str]) -> str:
+        return ", ".join(f"'{printable(x)}'" for x in names[:4]) + (f" and {len(names) - 4} more" if len(names) > 4
+                                                                    else "")
+    differ = (f"the model {spec.source} has {listed(here)} where the fit has {listed(there)}" if here and there else
+              f"the model {spec.source} has {listed(here)}, which the fit does not" if here else
+              f"the fit has {listed(there)}, which the model {spec.source} does not")
+    raise OptionError(f"the fit result's items are named otherwise than the model's ({differ}): its estimates belong "
+                      f"to its own items; give the model file the fit was made with, and to score other columns (such "
+                      f"as a retest's) with it, copy the data file with those columns renamed to the fit's item names")
 
 
 def ordinal_models_of_estimates(spec, rows, data, labels: tuple[str, ...] | None, source: str) -> tuple[list, list]:
@@ -667,7 +695,7 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     refuse_unknown_scale(saved.data, f"the fit in '{printable(str(saved_path))}'")
     refuse_inadmissible_saved_fit(saved.payload, saved.problems, saved.source, "no factor scores are computed with it")
     spec = api.load_spec(model)
-    chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")))
+    chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")), standard_errors)
     models, labels = models_of_saved_fit(spec, saved)
     return _score_other_data(saved, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
                              keep)

@@ -168,9 +168,13 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
     variances = np.diag(population.sigma)
     if np.abs(variances - 1.0).max() > 1e-6:
         k = int(np.argmax(np.abs(variances - 1.0)))
-        raise OptionError(f"with ordinal items the population values are on the scale of latent responses of variance "
-                          f"1, but the values given make the variance of '{population.observed[k]}' "
-                          f"{variances[k]:.3g}; change the 'start' values")
+        scale = (f"with ordinal items the population values are on the scale of latent responses of variance 1, but "
+                 f"the values {{}} make the variance of '{population.observed[k]}' {variances[k]:.3g}")
+        if population.fitted_from is not None:  # a continuous fit's values are on its items' own scales
+            raise OptionError(scale.format(f"of the continuous fit in {population.fitted_from}") + "; give the JSON "
+                              "result of an ordinal fit of these items (fit --ordinal), or leave out --categories for "
+                              "the power of the continuous model")
+        raise OptionError(scale.format("given") + "; change the 'start' values")
     table = build_parameter_table(ordinal_spec(spec)[0])
     value_of = {(v["kind"], tuple(v["variables"])): v["value"] for v in population.values()}
     entry_of = {}  # each free parameter through an entry that is that parameter alone

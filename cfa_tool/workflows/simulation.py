@@ -76,6 +76,8 @@ class Population:
     standard_units: bool = False
     #: what the earlier fit's data had that simulated rows do not (its sampling design, its missing answers)
     not_carried: tuple[str, ...] = ()
+    #: the thresholds are those of equally likely categories (--categories), not of the earlier fit
+    equal_categories: bool = False
 
     @property
     def ordinal_items(self) -> tuple[str, ...]:
@@ -117,10 +119,11 @@ class Population:
                         "standardized": float(mu / np.sqrt(self.sigma[k, k])), "default": False,
                         "from": ValueSource.EARLIER_FIT.value}
                        for k, (x, mu) in enumerate(zip(self.observed, self.means)) if x not in self.ordinal_items)
+        chosen = self.fitted_from is None or self.equal_categories  # by the number of categories, not a fit
         for item in self.ordinal_items:  # on the latent response's scale (variance 1): standardized already
             out.extend({"kind": "threshold", "variables": [item, str(step + 1)], "value": float(tau),
-                        "standardized": float(tau), "default": self.fitted_from is None,
-                        "from": (ValueSource.DEFAULT if self.fitted_from is None else ValueSource.EARLIER_FIT).value}
+                        "standardized": float(tau), "default": chosen,
+                        "from": (ValueSource.DEFAULT if chosen else ValueSource.EARLIER_FIT).value}
                        for step, tau in enumerate(self.thresholds[item]))
         return out
 
@@ -439,7 +442,8 @@ def with_categories(population: Population, spec: Spec, categories: int | None) 
     if categories is None:
         return population
     items = declared or list(population.observed)
-    return replace(population, thresholds={x: equal_thresholds(categories) for x in population.observed if x in items})
+    return replace(population, thresholds={x: equal_thresholds(categories) for x in population.observed if x in items},
+                   equal_categories=True)
 
 
 def cut_at_thresholds(rows: np.ndarray, sigma: np.ndarray, observed: tuple[str, ...],

@@ -134,8 +134,33 @@ def test_a_group_without_any_answer_is_named_as_such(hs_data):
         cfa_tool.fit(THREE_FACTORS, data, group="school")
     many = hs_data.copy()
     many.loc[many.school == "Pasteur", items[:7]] = np.nan
-    with pytest.raises(DataError, match="'x1', 'x2', 'x3', 'x4', 'x5' and 2 more have no answers at all"):
+    with pytest.raises(DataError, match="'x1', 'x2', 'x3', 'x4', 'x5' and 2 more have no answers in the 156 rows of "
+                                        "this group"):
         cfa_tool.fit(THREE_FACTORS, many, group="school")
+
+
+def test_an_item_empty_only_in_the_rows_kept_is_not_called_empty_in_the_file():
+    # hostile trial 7, H7: 'has no answers at all (every cell is empty); check the data file' while the file had
+    # answers in the rows the row filter left out. Invented data: 'c' answered in the west only.
+    data = _frame(80).assign(site=["east"] * 40 + ["west"] * 40)
+    data.loc[:39, "c"] = np.nan
+    for how in ({}, {"missing": "listwise"}):
+        with pytest.raises(DataError, match=r"column 'c' has no answers in the 40 rows kept by --keep 'site = east' "
+                                            r"\(every cell of those rows is empty\)"):
+            cfa_tool.fit(MODEL, data, keep=["site = east"], **how)
+    with pytest.raises(DataError, match=r"group 'east' of site\): column 'c' has no answers in the 40 rows of this "
+                                        r"group"):
+        cfa_tool.fit(MODEL, data, group="site")
+    coded = data.assign(**{c: np.clip(np.round(data[c]), -2, 2) for c in "abc"})
+    with pytest.raises(DataError, match="0 of the 40 rows kept by --keep 'site = east' answered item 'c', so its "
+                                        "thresholds cannot be estimated"):
+        cfa_tool.fit(MODEL, coded, keep=["site = east"], ordinal="all")
+    with pytest.raises(DataError, match=r"none of the 40 rows kept by --keep 'site = east' answers any of the "
+                                        r"model's 3 variables"):
+        cfa_tool.fit(MODEL, data.assign(a=np.nan, b=np.nan), keep=["site = east"])
+    # the whole file without answers keeps its own words
+    with pytest.raises(DataError, match="column 'c' has no answers at all"):
+        cfa_tool.fit(MODEL, data.assign(c=np.nan))
 
 def test_thousands_dots_in_a_decimal_comma_file_are_not_read_as_decimals(tmp_path):
     # '1.083' beside '850' in one column of a semicolon (decimal-comma) file: 1083 with a thousands dot, or 1.083?

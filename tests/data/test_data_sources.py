@@ -192,6 +192,65 @@ def test_excel_merged_header_is_refused(tmp_path):
         cfa_tool.fit("factor f: a, b, c\n", path)
 
 
+def _made_up_answers(n: int = 60) -> pd.DataFrame:
+    """Invented 1-5 answers to three items of one factor (seeded), for the workbook layout checks."""
+    rng = np.random.default_rng(11)
+    trait = rng.normal(size=n)
+    return pd.DataFrame({name: np.clip(np.rint(3 + trait + rng.normal(scale=0.8, size=n)), 1, 5).astype(int)
+                         for name in ("a", "b", "c")})
+
+
+def _sheet_of(data: pd.DataFrame, path, column: int = 1, merge: str | None = None):
+    import openpyxl
+
+    book = openpyxl.Workbook()
+    sheet = book.active
+    for j, name in enumerate(data.columns):
+        sheet.cell(1, column + j, name)
+        for i, value in enumerate(data[name], start=2):
+            sheet.cell(i, column + j, int(value))
+    if merge:
+        sheet.merge_cells(merge)
+    book.save(path)
+    return path
+
+
+def test_merged_cells_among_the_answers_are_refused_with_their_range_and_column(tmp_path):
+    # hostile trial 7, H1: the other cells of a merged range were read as missing answers without a word, while the
+    # sheet shows the value in them; only the header's merged cells were refused
+    path = _sheet_of(_made_up_answers(), tmp_path / "merged_body.xlsx", merge="B4:B7")
+    with pytest.raises(DataError, match=r"\(sheet 'Sheet'\): cells B4:B7 of column 'b' are merged") as caught:
+        cfa_tool.fit("factor f: a, b, c\n", path)
+    assert "\n" not in str(caught.value)
+    # a merged range of empty cells is read as shown (empty), and a table starting in column C is named by its columns
+    data = _made_up_answers()
+    path = _sheet_of(data, tmp_path / "shifted.xlsx", column=3, merge="F10:F12")
+    from cfa_tool.data.readers import read_data
+
+    assert list(read_data(path).frame.columns) == ["a", "b", "c"]
+    path = _sheet_of(data, tmp_path / "shifted_merged.xlsx", column=3, merge="D10:D12")
+    with pytest.raises(DataError, match="cells D10:D12 of column 'b' are merged"):
+        read_data(path)
+
+
+def test_a_table_starting_in_column_b_has_no_row_names(tmp_path):
+    # hostile trial 7, H6: the empty column A was reported as row names and then as '60 rows have no id'
+    from cfa_tool.data.readers import read_data
+
+    data = _made_up_answers()
+    data.to_csv(tmp_path / "plain.csv", index=False)  # pandas writes the reference copy
+    expected = cfa_tool.fit("factor f: a, b, c\n", tmp_path / "plain.csv")
+    for path in (_sheet_of(data, tmp_path / "col_b.xlsx", column=2), tmp_path / "lead.csv"):
+        if path.suffix == ".csv":
+            path.write_text("".join("," + line + "\n" for line in data.to_csv(index=False).splitlines()))
+        loaded = read_data(path)
+        assert list(loaded.frame.columns) == ["a", "b", "c"]
+        assert not any("row names" in note for note in loaded.notes), loaded.notes
+        result = cfa_tool.fit("factor f: a, b, c\n", path)
+        assert result.fit.chi_square == pytest.approx(expected.fit.chi_square, rel=1e-9)
+        assert not any("row names" in w or "no id" in w for w in result.warnings), result.warnings
+
+
 def test_missing_codes_in_a_plain_file(tmp_path, hs_items):
     data = hs_items[ITEMS].copy()
     data.loc[[3, 4, 5], "x2"] = -99

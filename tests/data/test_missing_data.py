@@ -294,3 +294,48 @@ def test_a_fit_with_gaps_names_its_own_way_to_complete_rows(hs_holes):
     result = cfa_tool.fit(THREE_FACTORS, hs_holes)
     assert any("a fit of the complete rows only (--incomplete-rows listwise) would leave those rows out" in w
                for w in result.warnings)
+
+
+def test_an_item_that_is_the_sum_of_two_others_is_named_whatever_the_path_for_gaps(tmp_path):
+    # hostile trial 7, H5: with some answers missing, full-information ML stopped (exit 3) blaming the gaps ('the rows
+    # do not carry enough answers together'); the complete rows named the exact combination (exit 2). Invented data:
+    # 'total' is the sum of 'a' and 'b' in every row that answers all three.
+    rng = np.random.default_rng(5)
+    trait = rng.normal(size=200)
+    data = pd.DataFrame({name: np.round(3 + trait + rng.normal(scale=0.7, size=200)) for name in "abcd"})
+    data["total"] = data["a"] + data["b"]
+    data.loc[[3, 17, 40], "c"] = np.nan
+    data.loc[[8, 90], "total"] = np.nan
+    path = tmp_path / "sum.csv"
+    data.to_csv(path, index=False)
+    model = "factor f: a, b, c, d, total\n"
+    named = r"the columns '(a|b|total)', '(a|b|total)', '(a|b|total)' are exact linear combinations of each other"
+    with pytest.raises(cfa_tool.errors.DataError, match=named + " in the 195 rows that answer all 5 items"):
+        cfa_tool.fit(model, path)
+    with pytest.raises(cfa_tool.errors.DataError, match=named + r" \(for example"):
+        cfa_tool.fit(model, path, missing="listwise")
+    for command in (["fit", str(tmp_path / "m.cfa")], ["explore"]):
+        (tmp_path / "m.cfa").write_text(model)
+        done = run(*command, "--data", str(path))
+        assert done.returncode == 2, done.stderr
+        assert "exact linear combinations" in done.stderr and len(done.stderr.strip().splitlines()) == 1
+
+
+def test_an_item_answered_by_few_rows_is_named_first():
+    # hostile trial 7, H10d: an item answered by 5 of 480 rows drove SRMR .171 and CFI .897, and the only word was
+    # '(each item answered in at least 1% of the rows)' in the paragraph. Invented data: 'e' answered by 15 of 200
+    # rows, 'd' by half of them (no caution for it).
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    rng = np.random.default_rng(3)
+    trait = rng.normal(size=200)
+    data = pd.DataFrame({name: trait + rng.normal(scale=0.8, size=200) for name in "abcde"})
+    data.loc[15:, "e"] = np.nan
+    data.loc[100:, "d"] = np.nan
+    result = cfa_tool.fit("factor f: a, b, c, d, e\n", data)
+    first = result.problems[0]
+    assert first.kind is ProblemKind.FEW_ANSWERS and not first.kind.inadmissible and result.admissible
+    assert "Few rows answer the item 'e' (15 of 200 rows)" in first.explanation and "'d'" not in first.explanation
+    assert sum(p.kind is ProblemKind.FEW_ANSWERS for p in result.problems) == 1
+    assert result.to_dict()["problems"][0]["kind"] == "item answered by few rows"
+    assert not any(p.kind is ProblemKind.FEW_ANSWERS for p in cfa_tool.fit("factor f: a, b, c, d\n", data).problems)

@@ -68,9 +68,16 @@ def test_ranges_and_quoted_names():
     # a range of quoted names (names beyond A-Z need quotes; new-user trial 6, U11), either end quoted
     spec = parse_model('factor f: "\u00c9nergie_1".."\u00c9nergie_3", "w 8".."w 10"\n', "r.cfa")
     assert spec.observed_names == ("\u00c9nergie_1", "\u00c9nergie_2", "\u00c9nergie_3", "w 8", "w 9", "w 10")
-    with pytest.raises(ModelError, match="must share the prefix before the number") as err:
+    with pytest.raises(ModelError, match="must be the same name but for one number") as err:
         parse_model('factor f: a1, "\u00c9nergie_1".."Energie_3"\n', "r.cfa")
     assert err.value.location.column == 15
+
+
+def test_a_range_counts_the_number_before_a_common_suffix():
+    # new-user trial 7, U7: 'mood1_t2..mood5_t2' was refused as not sharing 'the prefix before the number'
+    spec = parse_model("factor f: mood1_t2..mood3_t2, q1_08..q1_10\n", "r.cfa")
+    assert spec.observed_names == ("mood1_t2", "mood2_t2", "mood3_t2", "q1_08", "q1_09", "q1_10")
+    assert parse_model("factor f: a1, b2..b2, c3\n").observed_names == ("a1", "b2", "c3")
 
 
 def test_covary_with_more_names_means_every_pair():
@@ -123,8 +130,9 @@ def _error(text: str) -> ModelError:
         ("factor f: a, b, c\nname 'x'\n", 2, 6, "use double quotes"),
         ("factor f: a$, b, c\n", 1, 12, "unexpected character '$'"),
         ("factor f: item3..item1\n", 1, 11, "counts down"),
-        ("factor f: item1..q3\n", 1, 11, "must share the prefix"),
-        ("factor f: a..b\n", 1, 11, "names ending in numbers"),
+        ("factor f: item1..q3\n", 1, 11, "must be the same name but for one number"),
+        ("factor f: a1_t1..a3_t2\n", 1, 11, "must be the same name but for one number"),
+        ("factor f: a..c\n", 1, 11, "needs names with a number to count"),
         ("factor f: a, b, c\nscale latent by magic\n", 2, 17, "unknown way to scale a factor 'magic'"),
         ("# only a comment\n", 1, 1, "declares no factors"),
         ("", 1, 1, "declares no factors"),
@@ -154,6 +162,10 @@ def _error(text: str) -> ModelError:
         ("factor f: a, b, c\nscale f by effects\nfactor g: d\nfix variance(d) = 0\nname \"x\"\nname \"y\"\n", 6, 1, "already has a name"),
         ("factor f: a, b, c\nreversed b on 6 to 1\n", 2, 15, "from a smaller to a larger number; got 6 to 1"),
         ("factor f: a, b, c\nreversed b on 5 to 5\n", 2, 15, "from a smaller to a larger number"),
+        # hostile trial 7, H10c: 'on 1 to 1e308' was accepted (the keyed sum's mean printed with 76 digits)
+        ("factor f: a, b, c\nreversed b on 1 to 1e308\n", 2, 20, "the answer scale's end 1e+308 is not a rating "
+                                                                 "scale's answer"),
+        ("factor f: a, b, c\nreversed b on 2000000 to 2000004\n", 2, 15, "each between -1,000,000 and 1,000,000"),
         ("factor f: a, b, c\nreversed f on 1 to 5\n", 2, 10, "'f' is a factor; only items can be reverse-keyed"),
         ("factor f: a, b, c\nreversed z on 1 to 5\n", 2, 10, "'z' is not a factor or an indicator"),
         ("factor f: a, b, c\nreversed b on 1 to 5\nreversed c, b on 1 to 5\n", 3, 13, "'b' is declared reversed twice (first on line 2)"),

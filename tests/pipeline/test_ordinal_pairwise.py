@@ -163,7 +163,7 @@ def test_pairs_the_gaps_leave_empty_are_one_line_errors():
     apart = data.copy()
     apart.loc[:99, "y1"] = np.nan  # y1 answered only in the second half, y2 only in the first
     apart.loc[100:, "y2"] = np.nan
-    with pytest.raises(DataError, match="0 rows answered both 'y1' and 'y2'"):
+    with pytest.raises(DataError, match="0 of the 200 rows answered both 'y1' and 'y2'"):
         cfa_tool.fit(ONE_FACTOR, apart, ordinal="all")
     # a continuous item beside them that varies, but not among the rows that answered y1
     mixed = apart.drop(columns="y2").assign(x=np.where(np.arange(200) < 100, np.arange(200) / 10, 1.0))

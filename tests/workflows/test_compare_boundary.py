@@ -11,7 +11,7 @@ import pandas as pd
 import pytest
 from scipy import stats
 
-from cfa_tool.reporting.numbers import p_phrase
+from cfa_tool.reporting.numbers import missing, p_phrase
 from cfa_tool.reporting.workflow_tables import comparison_report
 from cfa_tool.workflows.compare import compare
 from tests.conftest import simulate_cfa
@@ -143,3 +143,28 @@ def test_factors_merged_under_a_higher_order_factor_put_their_disturbances_on_th
     assert "were set for tests of measurement invariance across groups, not for rival structures" in report.paragraph
     assert "were read against conventional guides" not in report.paragraph
     assert comparison.to_dict()["change_guides_apply"] is False
+
+
+def test_the_note_under_the_table_counts_the_p_values_it_names(data):
+    # new-user trial 7, U15: 'read those, not the p-values marked *' when the table's only p was the marked one
+    single = compare([ONE, TWO], data)
+    table = next(t for t in comparison_report(single).tables if t.key.startswith("difference_tests"))
+    assert sum(bool(row[2]) for row in table.rows) == 1
+    assert table.note.endswith(": read that, not the p-value marked *.")
+    several = compare([ONE, TWO], data, test="satorra-bentler")
+    table = next(t for t in comparison_report(several).tables if t.key.startswith("difference_tests"))
+    shown = sum(bool(row[2]) for row in table.rows)
+    marked = sum(not missing(t.boundary_p_value) for t in several.tests)
+    assert table.note.endswith(f": read {'that' if marked == 1 else 'those'}, not the "
+                               f"{'p-value' if shown == 1 else 'p-values'} marked *.")
+
+
+def test_the_notes_on_the_data_come_first_as_in_fit(data, tmp_path):
+    # new-user trial 7, U15: compare printed its notes on the data (answers outside a declared scale) after its tables
+    gaps = data.copy()
+    gaps.loc[[3, 8], "y1"] = np.nan
+    comparison = compare([ONE, TWO], gaps)
+    report = comparison_report(comparison)
+    assert comparison.notes and any("miss some answers" in n for n in comparison.notes)
+    assert [w.rstrip(".") for w in report.warnings] == [n.rstrip(".") for n in comparison.notes]
+    assert not any("miss some answers" in n for n in report.notes)

@@ -6,6 +6,7 @@ import numpy as np
 import pytest
 
 import cfa_tool
+from cfa_tool.errors import OptionError
 from cfa_tool.language import parse_model
 from cfa_tool.workflows.montecarlo import monte_carlo_power
 from cfa_tool.workflows.power import required_sample_size, rmsea_power
@@ -377,3 +378,13 @@ def test_too_few_resamples_or_samples_bring_a_caution(hs_data):
     cut = cfa_tool.cutoffs(THREE_FACTORS, hs_data, replications=50, workers=1)
     assert cutoffs_report(cut).warnings[0].startswith("Only 50 samples: each 5% tail holds about 2.5 of them, so the "
                                                       "cutoffs move with the seed; give 200 or more")
+
+
+def test_sample_sizes_are_tabled_from_the_smallest_whatever_the_order_typed():
+    # hostile trial 7, H10b: '--n 200,50,100' gave the columns N = 200, N = 50, N = 100
+    from cfa_tool import options
+
+    assert options.sample_sizes("200,50,100") == (50, 100, 200)
+    assert options.sample_sizes([300, 100]) == (100, 300)
+    with pytest.raises(OptionError, match="the sample size 50 is given twice"):
+        options.sample_sizes("200,50,50")

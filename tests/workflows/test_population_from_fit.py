@@ -183,3 +183,25 @@ def test_what_the_earlier_fit_had_and_the_simulation_has_not_is_said(tmp_path, h
     said = " ".join(run("power-simulation", str(tmp_path / "m.cfa"), "--n", "200", "--replications", "100",
                         "--workers", "1", "--population-from", str(plain)).stdout.split())
     assert "not carried over" not in said and "Only 100 replications" not in said
+
+
+def test_categories_with_a_continuous_fit_are_named_as_such(tmp_path):
+    # hostile trial 7, H8: power-simulation --population-from a continuous fit with --categories advised to 'change
+    # the 'start' values' (there are none); simulate labelled the thresholds of equally likely categories as the
+    # earlier fit's. Invented data: three items of one factor on their own scales (variances far from 1).
+    rng = np.random.default_rng(9)
+    trait = rng.normal(size=400)
+    data = {f"a{j}": 3 + j * (0.8 * trait + 0.6 * rng.normal(size=400)) for j in (1, 2, 3, 4)}
+    import pandas as pd
+
+    fitted = cfa_tool.fit("factor f: a1..a4\n", pd.DataFrame(data))
+    with pytest.raises(OptionError, match=r"the values of the continuous fit in .* make the variance of 'a\d' "
+                                          r"[0-9.]+; give the JSON result of an ordinal fit of these items \(fit "
+                                          r"--ordinal\), or leave out --categories"):
+        monte_carlo_power("factor f: a1..a4\n", 100, replications=2, workers=1, population=fitted, categories=4)
+    simulated = simulate("factor f: a1..a4\n", 50, seed=3, categories=4, population=fitted)
+    sources = {v["kind"]: v["from"] for v in simulated.population.values()}
+    assert sources["threshold"] == "default" and sources["loading"] == "earlier fit"
+    text = " ".join(simulated.summary().split())
+    assert "but the thresholds, which cut equally likely categories (--categories)" in text
+    assert "default = the thresholds of equally likely categories" in text

@@ -179,3 +179,20 @@ def test_the_ordinal_scores_report_says_how_precise_one_persons_score_is():
     assert "lowest third of the scores" in precision.note and "factor's standard deviation" in precision.note
     out = result.to_dict()["quality"][0]
     assert len(out["precision"]) == 2 and len(out["precision_by_score_level"]) == 2
+
+
+@pytest.mark.parametrize("model", [ONE, "factor f: q1, q2, q3, q4, y1\n"])
+def test_a_model_of_the_same_items_under_other_names_is_told_which_names_differ(tmp_path, model):
+    # new-user trial 7, U7: the same model on a retest's columns ('q1_t2' for 'q1') was refused as 'not of the model
+    # (its estimates differ from the model's parameters)', without a word that only the names differ
+    from cfa_tool.errors import OptionError
+
+    data = _draw(300, 5)
+    path = _saved(cfa_tool.fit(model, data), tmp_path)
+    retest = tmp_path / "retest.cfa"
+    retest.write_text(model.replace("q1, q2, q3, q4", "q1_t2..q4_t2").replace("ordinal q1..q4", "ordinal q1_t2..q4_t2"))
+    renamed = data.rename(columns={f"q{j}": f"q{j}_t2" for j in range(1, 5)})
+    with pytest.raises(OptionError, match=r"the fit result's items are named otherwise than the model's \(the model "
+                                          r".*retest.cfa has 'q1_t2', 'q2_t2', 'q3_t2', 'q4_t2' where the fit has 'q1', "
+                                          r"'q2', 'q3', 'q4'\).*copy the data file with those columns renamed"):
+        score_with_saved_fit(retest, path, renamed)
