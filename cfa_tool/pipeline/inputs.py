@@ -522,12 +522,15 @@ def with_design(result: FitResult, design) -> FitResult:
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     problems = result.problems
-    caution = design.caution(len(result.parameter_labels))
+    # the free parameters the views count (an ordinal fit's thresholds, first-step statistics in one group and
+    # parameters in a comparison's or ladder's groups, are not among them): one count for fit, compare, invariance
+    free = result.fit.n_free_parameters if result.fit is not None else len(result.parameter_labels)
+    caution = design.caution(free)
     if caution:  # first in every view: the standard errors and tests themselves are in doubt
         problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), caution,
                              "read the p-values with caution, or fit without --cluster and say that rows are nested in "
                              "clusters."),)
-    uneven = design.weight_caution(len(result.parameter_labels))
+    uneven = design.weight_caution(free)
     if uneven:
         problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,
                              "check the weights (a few rows may carry most of them), trim extreme weights by the survey's "

@@ -63,7 +63,9 @@ def _design_caution_lines(named_results) -> list[str]:
         return []
     name, _, problems = max(found, key=lambda f: f[1])
     same = all([p.line() for p in f[2]] == [p.line() for p in problems] for f in found)
-    return [("" if same else f"{name}: ") + p.line() for p in problems]
+    others = [n for n, _, _ in found if n != name]
+    whose = f"{name} (the model with the most free parameters{'; ' + word_list(others) + ' too' if others else ''}): "
+    return [("" if same else whose[0].upper() + whose[1:]) + p.line() for p in problems]
 
 
 def _notice(problems: list[str], cautions: list[str] = ()) -> ProblemNotice | None:
@@ -481,9 +483,9 @@ def invariance_report(result) -> Report:
         notes.append(result.latent_note)
     inadmissible = any(s.result.converged and not s.result.admissible for s in result.steps)
     first = result.steps[0].result
-    warnings = (tuple(result.warnings)
-                + tuple(_design_caution_lines([(f"the {s.level} model", s.result) for s in result.steps]))
-                + tuple(_caution_lines([(f"the {result.steps[0].level} model", first)])))
+    # the design's caution first: it doubts every step's test, the verdicts among the warnings included
+    warnings = (tuple(_design_caution_lines([(f"the {s.level} model", s.result) for s in result.steps]))
+                + tuple(result.warnings) + tuple(_caution_lines([(f"the {result.steps[0].level} model", first)])))
     notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else T.CAUTION, warnings,
                                                      inadmissible)
     lines = (f"Reference group (factor means fixed at zero): {result.groups[0]}",

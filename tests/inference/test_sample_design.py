@@ -324,8 +324,11 @@ def test_few_clusters_bring_their_caution_to_compare_and_invariance_first(hs_dat
     assert "Only 12 clusters in 'unit', no more than the 21 free parameters" in paragraph
     assert paragraph.index("12 clusters defined by unit") < paragraph.index("Only 12 clusters")  # after the design
     ladder = invariance(THREE_FACTORS, data, "school", cluster="unit")
-    text = report_text(invariance_report(ladder))
-    assert "The configural model: Only 12 clusters in 'unit', no more than the 60 free parameters" in text
+    report = invariance_report(ladder)
+    text = report_text(report)
+    assert report.notice.lines[0].startswith(
+        "The configural model (the model with the most free parameters; the metric model, the scalar model, and the "
+        "strict model too): Only 12 clusters in 'unit', no more than the 60 free parameters")  # first: before verdicts
     assert text.index("Only 12 clusters") < text.index("Measurement invariance")
     assert "Only 12 clusters in 'unit', no more than the 60 free parameters" in invariance_paragraph(
         ladder, [s.level for s in ladder.steps])
