@@ -452,9 +452,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     values = loaded.items.of(frame, spec.observed_names) if loaded.items is not None else None
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values)
     notes = missing_notes + notes
-    few = few_category_note(values, spec.observed_names) if values is not None else None
-    if few:
-        notes.append(few)
+    notes += few_category_notes(frame, spec.observed_names, values)
     if design is not None:
         fit_options = design_test(fit_options, design)
     # EM on thousands of rows: one thread beats several on small p; the moments and the fit in one context (the
@@ -652,13 +650,25 @@ def continuous_only(spec: Spec, command: str) -> Spec:
     return spec
 
 
+def few_category_notes(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None) -> list[str]:
+    """For a command that treats ``names`` as continuous: the note on items of few answer categories
+    (data.descriptives.few_category_note), empty when there are none (``values``: the items taken out already)."""
+    if values is None:
+        try:
+            values = frame[list(names)].to_numpy(dtype=float)
+        except (KeyError, TypeError, ValueError):  # the reading of the items names what is wrong
+            return []
+    note = few_category_note(values, names)
+    return [note] if note else []
+
+
 def refit_missing_handling(frame: pd.DataFrame, names: tuple[str, ...], missing) -> tuple[MissingData, list[str]]:
     """How a command that refits many samples of continuous items (bootstrap, cutoffs, replicate) treats rows
     with gaps, with fit's note: as fit does, full-information ML when a model variable has gaps (or when asked),
     the complete rows when ``missing='listwise'`` (--incomplete-rows listwise)."""
     missing = None if missing is None else MissingData.parse(missing, "the handling of rows with missing answers")
     options, notes = choose_missing_handling(FitOptions(missing=missing), frame, names, None)
-    return options.missing, notes
+    return options.missing, notes + few_category_notes(frame, names)
 
 
 def without_exploratory_blocks(spec: Spec, command: str, why: str) -> Spec:

@@ -8,7 +8,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (_described, choose_missing_handling, design_test, load_spec, make_options, moments_for,
+from cfa_tool.pipeline.inputs import (_described, choose_missing_handling, design_test, few_category_notes, load_spec, make_options, moments_for,
                                       of_summary_statistics,
                                       odd_value_problems, odd_values_named,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
@@ -148,7 +148,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             pairwise = fit_options.missing is not MissingData.LISTWISE
         else:
             fit_options, missing_notes = choose_missing_handling(fit_options, frame, tuple(used), None)
-            notes = list(missing_notes) + list(notes)
+            notes = list(missing_notes) + few_category_notes(frame, tuple(used)) + list(notes)
         if fit_options.missing is MissingData.FULL_INFORMATION or pairwise:  # the rows every model can use: some answers
             answers = [frame[list(spec.observed_names)].notna().to_numpy().any(axis=1) for spec in specs]
             complete = frame.loc[np.logical_and.reduce(answers)]

@@ -17,7 +17,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test,
+from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_category_notes,
                                       make_options, moments_for, odd_value_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design)
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
@@ -276,7 +276,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         # rows with gaps are kept (full-information ML), as 'fit' keeps them, unless listwise is asked for
         fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
         groups, notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design=design)
-        notes = list(missing_notes) + list(read_notes) + list(notes)
+        notes = list(missing_notes) + few_category_notes(frame, spec.observed_names) + list(read_notes) + list(notes)
         ladder = NormalLadder(design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
     labels = tuple(label for label, _ in groups)
     threads = blas_threads_for(len(spec.observed_names))  # the fits' matrices are small: one BLAS thread (numerics.threads)

@@ -40,3 +40,14 @@ def test_five_categories_or_measures_bring_no_note():
     assert few_category_items(measured.to_numpy(), tuple(measured.columns)) == ("y1", "y2", "y4")
     constant = _answers(4).assign(y4=1.0)
     assert "y4" not in few_category_items(constant.to_numpy(), tuple(constant.columns))
+
+
+def test_compare_and_invariance_give_the_same_note():
+    # re-check 7: the note was given by fit only; compare and invariance treat the items as continuous too
+    from cfa_tool.workflows.compare import compare
+    from cfa_tool.workflows.invariance import invariance
+
+    data = _answers(4, n=600).assign(site=lambda d: np.where(d.index % 2 == 0, "east", "west"))
+    two = "factor f: y1, y2\nfactor g: y3, y4\n"
+    assert any("answer categories" in w for w in compare([MODEL, two], data).notes)
+    assert any("answer categories" in w for w in invariance(MODEL, data, "site").notes)
