@@ -634,7 +634,8 @@ def _same_item_names(spec, fitted: tuple[str, ...]) -> None:
               f"the fit has {listed(there)}, which the model {spec.source} does not")
     raise OptionError(f"the fit result's items are named otherwise than the model's ({differ}): its estimates belong "
                       f"to its own items; give the model file the fit was made with, and to score other columns (such "
-                      f"as a retest's) with it, copy the data file with those columns renamed to the fit's item names")
+                      f"as a retest's) with it, copy the data file with those columns renamed to the fit's item "
+                      f"names (after renaming or dropping the columns that already carry those names)")
 
 
 def ordinal_models_of_estimates(spec, rows, data, labels: tuple[str, ...] | None, source: str) -> tuple[list, list]:
