@@ -98,15 +98,34 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
                             row_names=names[0] if names else None)
     loaded = _composed_names(loaded)
     frame, written = written_non_answers(loaded.frame, text_columns)  # before the codes: 'refused' made a column text
+    read_as_none = []  # (column, cells) that --missing-codes turned into no answer
     if missing_codes:
         frame = frame.copy()
         for column in frame.columns:
             if pd.api.types.is_numeric_dtype(frame[column]):
-                frame[column] = frame[column].where(~frame[column].isin(missing_codes))
+                coded = frame[column].isin(missing_codes)
+                if coded.any():
+                    read_as_none.append((column, int(coded.sum())))
+                    frame[column] = frame[column].where(~coded)
     frame, labelled = labelled_non_answers(frame, loaded.value_labels, tuple(missing_codes))
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
+    if missing_codes:
+        loaded = replace(loaded, notes=loaded.notes + (_missing_codes_note(path, missing_codes, read_as_none),))
     return loaded
+
+
+def _missing_codes_note(path: Path, codes, read_as_none: list[tuple[str, int]]) -> str:
+    """What --missing-codes did, said with the data: how many cells of which columns it read as no answer (or that
+    no cell holds any of the codes, as a mistyped code would leave it)."""
+    given = ", ".join(f"{c:g}" if isinstance(c, (int, float)) else str(c) for c in codes)
+    if not read_as_none:
+        return f"{path.name}: no cell holds any of the codes given with --missing-codes ({given})"
+    total = sum(n for _, n in read_as_none)
+    shown = ", ".join(f"{column} {n}" for column, n in read_as_none[:8]) + (
+        f" and {len(read_as_none) - 8} more columns" if len(read_as_none) > 8 else "")
+    return (f"{path.name}: {total} {'cell' if total == 1 else 'cells'} holding a code given with --missing-codes "
+            f"({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})")
 
 
 def _composed_names(loaded: LoadedData) -> LoadedData:

@@ -222,3 +222,23 @@ def test_an_answer_given_once_at_the_end_of_the_scale_gets_missing_codes_first(a
     table = category_table(cfa_tool.fit(MODEL, data))
     assert "Answered by one row only: c1 -1" in table.note
     assert "if -1 is a typing error or a code for no answer, give --missing-codes -1;" in table.note
+
+
+def test_missing_codes_say_how_many_cells_they_read_as_no_answer(tmp_path):
+    """Re-check 7: nothing said that --missing-codes -1,4 had turned 4 cells into missing answers.  Check values:
+    the cells set by hand, counted by pandas."""
+    import cfa_tool
+
+    rng = np.random.default_rng(8)
+    f = rng.normal(size=(200, 1))
+    data = pd.DataFrame(np.clip(np.round(f * 0.9 + rng.normal(size=(200, 4)) * 0.7 + 3), 1, 5),
+                        columns=["a1", "a2", "a3", "a4"])
+    data.loc[[3, 7], "a1"], data.loc[11, "a3"] = -9, 99
+    path = tmp_path / "coded.csv"
+    data.to_csv(path, index=False)
+    result = cfa_tool.fit("factor f: a1, a2, a3, a4\n", path, missing_codes=[-9, 99])
+    said = [w for w in result.warnings if "--missing-codes" in w]
+    assert said == ["coded.csv: 3 cells holding a code given with --missing-codes (-9, 99) were read as no answer "
+                    "(a1 2, a3 1)"]
+    none = cfa_tool.fit("factor f: a1, a2, a3, a4\n", path, missing_codes=[-99])
+    assert "coded.csv: no cell holds any of the codes given with --missing-codes (-99)" in none.warnings
