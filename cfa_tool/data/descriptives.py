@@ -49,10 +49,12 @@ FEW_CATEGORIES = 4
 def few_category_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[str, ...]:
     """The items (columns of ``values``, gaps NaN) answered in whole numbers spanning at most FEW_CATEGORIES
     values (so at most that many categories), with two categories at least."""
+    if not values.size:  # no rows (the reading of the data says so)
+        return ()
     answered = ~np.isnan(values)
     with np.errstate(invalid="ignore"):
-        low = np.nanmin(np.where(answered, values, np.inf), axis=0)
-        high = np.nanmax(np.where(answered, values, -np.inf), axis=0)
+        low = np.where(answered, values, np.inf).min(axis=0)
+        high = np.where(answered, values, -np.inf).max(axis=0)
         whole = np.all(~answered | (values == np.round(values)), axis=0)
     few = whole & (high > low) & (high - low <= FEW_CATEGORIES - 1)
     return tuple(name for name, flag in zip(names, few) if flag)
