@@ -71,6 +71,23 @@ class ProblemKind(enum.Enum):
 DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.SMALL_EFFECTIVE_SAMPLE})
 
 
+def free_parameters(result) -> int:
+    """The free parameters of a fit as its views count them (an ordinal fit's thresholds, first-step statistics in
+    one group and parameters in a comparison's or ladder's groups, are not among them): the count the design's
+    cautions weigh."""
+    return result.fit.n_free_parameters if result.fit is not None else len(result.parameter_labels)
+
+
+def design_cautions(results) -> tuple[object | None, tuple]:
+    """(the fit, its design cautions) among fits of the same rows under one design: those of the fit with the most
+    free parameters, which they weigh on most; (None, ()) when no fit has one."""
+    doubted = [r for r in results if any(p.kind in DESIGN_CAUTIONS for p in getattr(r, "problems", ()))]
+    if not doubted:
+        return None, ()
+    most = max(doubted, key=free_parameters)
+    return most, tuple(p for p in most.problems if p.kind in DESIGN_CAUTIONS)
+
+
 @dataclass(frozen=True)
 class Problem:
     """One problem of a solution.  ``parameters`` are parameter labels as the parameter table writes them

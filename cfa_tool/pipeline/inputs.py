@@ -517,12 +517,10 @@ def design_test(fit_options, design: DesignColumns):
 
 def with_design(result: FitResult, design) -> FitResult:
     """The result stating the design it was fitted under (status line, JSON, methods paragraph, cautions)."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind, free_parameters
 
     problems = result.problems
-    # the free parameters the views count (an ordinal fit's thresholds, first-step statistics in one group and
-    # parameters in a comparison's or ladder's groups, are not among them): one count for fit, compare, invariance
-    free = result.fit.n_free_parameters if result.fit is not None else len(result.parameter_labels)
+    free = free_parameters(result)  # one count for fit, compare and invariance
     caution = design.caution(free)
     if caution:  # first in every view: the standard errors and tests themselves are in doubt
         problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), caution,

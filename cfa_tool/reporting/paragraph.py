@@ -15,7 +15,7 @@ import math
 
 from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
-from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind
+from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
@@ -63,8 +63,7 @@ def _design_sentences(results) -> list[str]:
     first = results[0]
     if getattr(first, "design", None) is None:
         return []
-    most = max(results, key=lambda r: len(r.parameter_labels))
-    return [design_sentence(first)] + [p.explanation for p in most.problems if p.kind in DESIGN_CAUTIONS]
+    return [design_sentence(first)] + [p.explanation for p in design_cautions(results)[1]]
 
 
 def _estimator_phrase(result) -> str:

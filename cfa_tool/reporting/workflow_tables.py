@@ -7,7 +7,7 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind
+from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
@@ -54,18 +54,19 @@ def _caution_lines(named_results) -> list[str]:
 
 def _design_caution_lines(named_results) -> list[str]:
     """The sampling design's cautions (too few clusters, a small effective sample) of several fits of the same rows,
-    once: those of the fit with the most free parameters, the one they weigh on most, named by it when the fits'
-    cautions differ (e.g. 'no more than the 78 free parameters' of one model only)."""
-    found = [(name, len(r.parameter_labels), [p for p in r.problems if p.kind in DESIGN_CAUTIONS])
-             for name, r in named_results if getattr(r, "problems", ())]
-    found = [f for f in found if f[2]]
-    if not found:
+    once (admissibility.design_cautions), named by their fit when the fits' cautions differ (e.g. 'no more than the 78
+    free parameters' of one model only), with the other fits that have cautions of their own."""
+    most, problems = design_cautions([r for _, r in named_results])
+    if most is None:
         return []
-    name, _, problems = max(found, key=lambda f: f[1])
-    same = all([p.line() for p in f[2]] == [p.line() for p in problems] for f in found)
-    others = [n for n, _, _ in found if n != name]
+    own = [(name, tuple(p for p in r.problems if p.kind in DESIGN_CAUTIONS)) for name, r in named_results]
+    own = [(name, found) for name, found in own if found]
+    if all(found == problems for _, found in own):
+        return [p.line() for p in problems]
+    name = next(n for n, r in named_results if r is most)
+    others = [n for n, _ in own if n != name]
     whose = f"{name} (the model with the most free parameters{'; ' + word_list(others) + ' too' if others else ''}): "
-    return [("" if same else whose[0].upper() + whose[1:]) + p.line() for p in problems]
+    return [whose[0].upper() + whose[1:] + p.line() for p in problems]
 
 
 def _notice(problems: list[str], cautions: list[str] = ()) -> ProblemNotice | None:
