@@ -651,12 +651,9 @@ def continuous_only(spec: Spec, command: str) -> Spec:
 def few_category_notes(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None) -> list[str]:
     """For a command that treats ``names`` as continuous: the note on items of few answer categories
     (data.descriptives.few_category_note), empty when there are none (``values``: the items taken out already)."""
-    if values is None:
-        columns = [frame[x] for x in names if x in frame.columns]
-        if len(columns) < len(names) or not all(pd.api.types.is_integer_dtype(c) or pd.api.types.is_float_dtype(c)
-                                                for c in columns):
-            return []  # not plain numbers: the reading of the items names what is wrong
-        values = np.column_stack([c.to_numpy(dtype=float, na_value=np.nan) for c in columns])
+    values = item_values(frame, names) if values is None else values
+    if values is None:  # not plain numbers: the reading of the items names what is wrong
+        return []
     note = few_category_note(values, names)
     return [note] if note else []
 
