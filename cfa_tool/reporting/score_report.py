@@ -101,19 +101,21 @@ def quality_table(result, k: int) -> ReportTable:
                   flagged=tuple(i for i, low in enumerate(q.low_determinacy) if low))
 
 
+def _precision_of(result, q) -> tuple[ScoreMethod, tuple]:
+    """(the method, its scoring.quality.Precision per factor) of one group's scores: the first method written
+    (continuous items), the posterior means (ordinal items, whose quality holds them)."""
+    if not hasattr(q, "methods"):
+        return ScoreMethod.EXPECTED_A_POSTERIORI, q.precision
+    return result.methods[0], (q.precision(result.methods[0]) if q.factor_sd else ())
+
+
 def precision_table(result, k: int) -> ReportTable | None:
-    """How precise one person's score is, for the first method written (continuous items; module docstring of
-    scoring.quality): the standard error, a 95% band and the smallest difference between two people that exceeds
-    chance, in the factor's units and in its standard deviations."""
+    """How precise one person's score is, for the first method written or the posterior means of ordinal items
+    (module docstring of scoring.quality): the standard error, a 95% band and the smallest difference between two
+    people that exceeds chance, in the factor's units and in its standard deviations."""
     q = result.quality[k]
     ordinal = not hasattr(q, "methods")
-    if ordinal:
-        method, found = ScoreMethod.EXPECTED_A_POSTERIORI, q.precision
-    elif not q.factor_sd:
-        return None
-    else:
-        method = result.methods[0]
-        found = q.precision(method)
+    method, found = _precision_of(result, q)
     rows, values = [], []
     for p in found:
         rows.append([p.factor, num(p.standard_error, 2), f"±{num(p.band, 2)}", f"±{num(p.band_in_sd, 2)}",
@@ -148,12 +150,12 @@ def precision_cautions(result) -> list[str]:
     """Factors whose scores' reliability is below what decisions about individuals usually need."""
     lines = []
     for q in result.quality:
+        method, precise = _precision_of(result, q)
+        words = f"{METHOD_LABELS[method]} scores"
         if hasattr(q, "methods"):
-            words = f"{METHOD_LABELS[result.methods[0]]} scores"
-            found = [(p.factor, p.reliability, p.band_in_sd) for p in q.precision(result.methods[0])]
-        else:
-            words = f"{METHOD_LABELS[ScoreMethod.EXPECTED_A_POSTERIORI]} scores"
-            bands = {p.factor: p.band_in_sd for p in q.precision}
+            found = [(p.factor, p.reliability, p.band_in_sd) for p in precise]
+        else:  # every scored factor, with its band where rows answered all its items
+            bands = {p.factor: p.band_in_sd for p in precise}
             found = [(f, rel, bands.get(f)) for f, rel in zip(q.factors, q.reliability)]
         low = [f"{factor} {unit(rel, 2)}" + (f" (95% band about ±{num(band, 2)} SD of the factor)" if band is not None
                                              else "") for factor, rel, band in found if rel < INDIVIDUAL_DECISIONS]
