@@ -41,13 +41,13 @@ def _keyed_codes(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndarray], 
     return item, t, d
 
 
-def _sum_variance(item: np.ndarray, t: np.ndarray, d: np.ndarray, rho: np.ndarray) -> float:
+def _sum_variance(item: np.ndarray, t: np.ndarray, d: np.ndarray, rho: np.ndarray, whole: bool) -> float:
     """The first line of the module docstring summed over the keyed items: Var(X) under the model (``rho``: the
     latent responses' correlations, or the part of them due to the factor for Var(E[X | f]))."""
     h, k = np.meshgrid(t, t, indexing="ij")
     joint = bivariate_cdf(h, k, rho[np.ix_(item, item)])
     same = item[:, None] == item[None, :]
-    if np.allclose(np.diag(rho), 1.0):  # one latent response with itself: correlation 1 exactly
+    if whole:  # the whole correlations: one latent response with itself correlates 1 exactly
         joint[same] = special.ndtr(np.minimum(h, k))[same]
     return float(d @ (joint - np.outer(special.ndtr(t), special.ndtr(t))) @ d)
 
@@ -62,8 +62,8 @@ def observed_sum_omega(thresholds: Sequence[np.ndarray], steps: Sequence[np.ndar
     (G_if G_jf Phi_ff) and ``keys`` +1 or -1 per item."""
     sd = np.sqrt(np.diag(sigma))
     item, t, d = _keyed_codes(thresholds, steps, mean, sd, keys)
-    total = _sum_variance(item, t, d, sigma / np.outer(sd, sd))
-    due = _sum_variance(item, t, d, common / np.outer(sd, sd))
+    total = _sum_variance(item, t, d, sigma / np.outer(sd, sd), whole=True)
+    due = _sum_variance(item, t, d, common / np.outer(sd, sd), whole=False)
     return due / total if total > 0 else float("nan")
 
 
@@ -78,7 +78,7 @@ def observed_sum_factor_correlation(thresholds: Sequence[np.ndarray], steps: Seq
     factor itself.  ``with_factor``: Cov(y*_i, f) of the items (their loadings times the factor's covariances)."""
     sd = np.sqrt(np.diag(sigma))
     item, t, d = _keyed_codes(thresholds, steps, mean, sd, keys)
-    variance = _sum_variance(item, t, d, sigma / np.outer(sd, sd))
+    variance = _sum_variance(item, t, d, sigma / np.outer(sd, sd), whole=True)
     density = np.exp(-0.5 * t**2) / np.sqrt(2.0 * np.pi)
     covariance = float(d @ (density * (np.asarray(with_factor, float) / sd)[item]))
     if variance <= 0 or factor_variance <= 0:
