@@ -231,7 +231,9 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     expected information, stays right when the model misfits).  Row i's influence puts
     vech(d_i d_i') - vech(S) for ds, d_i its deviation from the means (Hampel et al. 1986).
     Under a sampling design the moments are weighted, each row's influence is multiplied by its
-    weight (rescaled to mean one) and the rows of a cluster are summed: one value per cluster.
+    weight (rescaled to mean one) and the rows of a cluster are summed: one value per cluster.  A record
+    of frequency weight k without clusters is k identical rows: its value is each row's influence, which
+    :func:`acceleration` counts k times.
     Rows with gaps (``rows`` holding NaN): the full-information estimate's influence
     (:func:`full_information_influence`), under a design weighted and summed within clusters as above.
     Entries are affine in theta; standardized values follow by the chain rule, their
@@ -248,7 +250,8 @@ def influence_values(spec, rows: np.ndarray, names: tuple[str, ...], theta: np.n
     model, table, theta = est.model, est.table, est.theta
     if gaps:
         influence_theta = full_information_influence(est.likelihood, theta)
-        if design is not None:  # weighted scores (weights rescaled to mean one), summed within clusters
+        if design is not None and _row_counts(design) is None:  # weighted scores (weights rescaled to mean
+            # one), summed within clusters; a frequency-weighted record without clusters keeps its rows' influence
             influence_theta = influence_theta * (w * len(w) / w.sum())[:, None]
             influence_theta = np.vstack([influence_theta[rows_of].sum(axis=0) for clusters in sampling_units(design)
                                          for rows_of in clusters])
@@ -320,22 +323,35 @@ def _complete_row_influence(est, rows: np.ndarray, w: np.ndarray | None, design)
     else:
         dev = rows - w @ rows / w.sum()
         U = dev[:, I] * dev[:, J]
-        U = (U - w @ U / w.sum()) * (w * len(w) / w.sum())[:, None]
-        U = np.vstack([U[rows_of].sum(axis=0) for clusters in sampling_units(design) for rows_of in clusters])
+        U = U - w @ U / w.sum()
+        if _row_counts(design) is None:  # weighted (rescaled to mean one) and summed within clusters; a
+            # frequency-weighted record without clusters keeps each of its rows' influence
+            U = U * (w * len(w) / w.sum())[:, None]
+            U = np.vstack([U[rows_of].sum(axis=0) for clusters in sampling_units(design) for rows_of in clusters])
     hessian = est.likelihood.observed_hessian(theta)
     if hessian is None:
         hessian = 2.0 * (delta.T @ WD)
     return 2.0 * U @ WD @ scaled_inverse(hessian)  # (N, q); the Hessian is symmetric
 
 
-def acceleration(influence: np.ndarray) -> np.ndarray:
+def acceleration(influence: np.ndarray, counts: np.ndarray | None = None) -> np.ndarray:
     """BCa acceleration of each column of influence values: sum U^3 / (6 (sum U^2)^(3/2))
     (Efron 1987; Efron & Tibshirani 1993, ch. 14, with the jackknife's differences replaced by
-    the empirical influence, which they approximate)."""
-    U = influence - influence.mean(axis=0)
-    denominator = 6.0 * np.sum(U**2, axis=0) ** 1.5
+    the empirical influence, which they approximate).  ``counts``: how many rows each line of ``influence``
+    stands for (frequency weights), each counted that often in the sums, as the expanded rows would be."""
+    c = np.ones(len(influence)) if counts is None else np.asarray(counts, dtype=float)
+    U = influence - c @ influence / c.sum()
+    denominator = 6.0 * (c @ U**2) ** 1.5
     with np.errstate(invalid="ignore", divide="ignore"):
-        return np.where(denominator > 0, np.sum(U**3, axis=0) / np.where(denominator > 0, denominator, 1.0), 0.0)
+        return np.where(denominator > 0, c @ U**3 / np.where(denominator > 0, denominator, 1.0), 0.0)
+
+
+def _row_counts(design) -> np.ndarray | None:
+    """How many rows each record stands for when the bootstrap resamples rows, not records: frequency weights
+    without clusters (None otherwise: each record, or each cluster, is one unit of the resampling)."""
+    if design is not None and design.kind is WeightKind.FREQUENCY and design.clusters is None:
+        return design.weights
+    return None
 
 
 def bootstrap_options(replications: int, seed: int, workers: int | None) -> tuple[int, int]:
@@ -401,7 +417,8 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     accel_values = accel_std = None
     if bca:
         influence, influence_std = influence_values(spec, moments_rows, names, start, design)
-        accel_values, accel_std = acceleration(influence), acceleration(influence_std)
+        counts = _row_counts(design)
+        accel_values, accel_std = acceleration(influence, counts), acceleration(influence_std, counts)
     intervals = _intervals(result, values, standardized, accel_values, accel_std)
     p_bs = converged_bs = None
     if bollen_stine is not False:
