@@ -644,14 +644,17 @@ def _held(step, basis: str = "") -> str:
 
 
 def _basis(steps, k: int) -> str:
-    """The first step before step ``k`` whose estimation did not converge or whose solution is not admissible,
-    in words ('' when there is none: a step after one that merely misfits is marked by the closing sentence)."""
+    """The first step before step ``k`` whose estimation did not converge, whose solution is not admissible or that
+    did not hold (:func:`unsound_basis`), in words ('' when there is none: a step after a configural model that
+    merely misfits is marked by the closing sentence)."""
     from cfa_tool.workflows.invariance import unsound_basis  # an invariance ladder's: loaded with one
 
     failed = unsound_basis(steps, k)
     if failed is None:
         return ""
-    return f"the {failed.level} step, which {'did not converge' if not failed.result.converged else 'was not admissible'}"
+    why = ("did not converge" if not failed.result.converged else "was not admissible" if not failed.result.admissible
+           else "did not hold")
+    return f"the {failed.level} step, which {why}"
 
 
 def _step_problems(steps) -> str:

@@ -326,10 +326,11 @@ INADMISSIBLE_VERDICT_NOTE = ("'inadmissible': the step's solution is not admissi
                              "does not hold: it cannot show that invariance holds, whatever its fit.")
 
 
-#: a step that met its test but rests on a step that did not converge or is not admissible (the paragraph's words)
+#: a step that met its test but rests on a step that did not hold, did not converge or is not admissible
 TEST_MET = "test met"
-TEST_MET_NOTE = (f"'{TEST_MET}': the step met its test but rests on a step whose estimation did not converge or whose "
-                 f"solution is not admissible, so it cannot be read as held.")
+TEST_MET_NOTE = (f"'{TEST_MET}': the step met its test but rests on a step that did not hold, whose estimation did "
+                 f"not converge or whose solution is not admissible (its model keeps that step's equalities), so it "
+                 f"cannot be read as held.")
 
 
 def _verdict(holds: bool | None, result) -> str:

@@ -383,10 +383,14 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
 
 
 def unsound_basis(steps, k: int):
-    """The first step before step ``k`` whose estimation did not converge or whose solution is not admissible
-    (None when there is none): a step resting on it cannot show that invariance holds, even when it meets its
-    test.  The one rule the ladder's 'Holds' cells and the methods paragraph follow."""
-    return next((s for s in steps[:k] if not s.result.converged or not s.result.admissible), None)
+    """The first step before step ``k`` whose estimation did not converge, whose solution is not admissible, or
+    that (after the configural one) did not hold (None when there is none): a step resting on it cannot show that
+    invariance holds, even when it meets its test, since its model keeps the equalities that step rejected (strict
+    invariance holds only where scalar invariance does).  A configural model that merely misfits by the guide
+    values is not such a basis: the steps after it are marked as conditional and the report says so first.  The
+    one rule the ladder's 'Holds' cells and the methods paragraph follow."""
+    return next((s for i, s in enumerate(steps[:k])
+                 if not s.result.converged or not s.result.admissible or (i > 0 and not s.holds)), None)
 
 
 def _step_holds(rule: DecisionRule, test: DifferenceTest, alpha: float, result: FitResult, general: FitResult,

@@ -169,3 +169,30 @@ def test_ordinal_steps_carry_no_fit_index_changes_and_every_view_says_why(ordina
         text = _plain(text)
         assert why in text, name
         assert "\u0394CFI" not in text and "\u0394RMSEA" not in text, name
+
+
+def test_a_step_after_a_rejected_step_is_not_called_held():
+    # Strict invariance (equal error variances) adds its equalities to those of the scalar model, so where scalar
+    # invariance did not hold, strict invariance cannot hold either (Meredith 1993: each level includes the one
+    # before), whatever its own difference test says.  A new-user trial found "Scalar invariance did not hold ...
+    # Strict invariance held" in one paragraph.  Simulated here: two groups of 600 under one two-factor model, one
+    # item's intercept 0.8 higher in the second group, everything else equal (seeded), so that the scalar step fails
+    # and the strict step meets its test.
+    rng = np.random.default_rng(11)
+    frames = []
+    for group, shift in (("a", 0.0), ("b", 0.8)):
+        f = rng.multivariate_normal([0, 0], [[1, .4], [.4, 1]], 600)
+        loadings = np.array([[.8, 0], [.7, 0], [.6, 0], [0, .8], [0, .7], [0, .6]])
+        y = f @ loadings.T + rng.normal(0, .6, (600, 6))
+        y[:, 1] += shift
+        frames.append(pd.DataFrame(y, columns=[f"y{i}" for i in range(1, 7)]).assign(team=group))
+    result = invariance("factor f1: y1, y2, y3\nfactor f2: y4, y5, y6\n", pd.concat(frames, ignore_index=True),
+                        "team", partial="none")
+    assert [(s.level, s.holds) for s in result.steps] == [("configural", True), ("metric", True), ("scalar", False),
+                                                        ("strict", True)]
+    text = _text(result)
+    assert "Scalar invariance did not hold" in text and "Strict invariance held" not in text
+    assert "Strict invariance cannot be read as held, though it met its test: it rests on the scalar step, which did " \
+           "not hold" in text
+    steps = next(t for t in invariance_report(result).tables if t.key == "steps")
+    assert steps.rows[-1][-1] == "test met *" and "rests on a step that did not hold" in steps.note
