@@ -3,6 +3,8 @@ misbehaved, and what to try."""
 
 from __future__ import annotations
 
+import numpy as np
+
 from cfa_tool.estimation.optimizer import Outcome
 from cfa_tool.estimation.strategy import Restart, Search
 
@@ -10,9 +12,11 @@ IDENTIFICATION_HINT = ("check that every factor is identified (three or more ite
                        "and a correlation with another factor)")
 
 
-def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int) -> str:
+def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, lower: np.ndarray | None = None,
+                           upper: np.ndarray | None = None) -> str:
     """One paragraph for a search that did not converge; ``labels`` name the free parameters and ``limit``
-    is the iteration limit in force."""
+    is the iteration limit in force; ``lower`` and ``upper``: the free parameters' bounds (the model file's
+    'bound' statements), so that a search that ended against a bound says so."""
     result = found.result
     used = result.iterations
     outcome = Outcome.ITERATION_LIMIT if used >= limit and result.outcome is not Outcome.BAD_START else result.outcome
@@ -32,6 +36,12 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int) -
             names = [labels[k] for k in indices]
             parts.append(f"{_and_list(names)} {words}")
     advice = []
+    held = _held_at_bounds(result.theta, labels, lower, upper)
+    if held:
+        parts.append(f"{_and_list(held)} {'was' if len(held) == 1 else 'were'} held at the model file's "
+                     f"bound{'s' if len(held) > 1 else ''}")
+        advice.append("check that the bounds leave room for the data (a variance bounded above the item's own "
+                      "variance, say, cannot be met)")
     if found.restart is Restart.FAILED:
         parts.append("a restart with every factor's variance fixed at 1 did not converge either")
     elif found.restart is Restart.UNSCALABLE:
@@ -70,3 +80,17 @@ def _and_list(words: list[str]) -> str:
 
 def _or_list(words: list[str]) -> str:
     return words[0] if len(words) == 1 else ", ".join(words[:-1]) + ", or " + words[-1]
+
+
+def _held_at_bounds(theta, labels: tuple[str, ...], lower, upper) -> list[str]:
+    """The free parameters at a finite bound of the model file, in words with the bound ('variance(x) at its
+    bound of at least 5')."""
+    if lower is None or upper is None or theta is None or len(theta) != len(labels):
+        return []
+    theta = np.asarray(theta, dtype=float)
+    out = []
+    for k, label in enumerate(labels):
+        for bound, word in ((lower[k], "at least"), (upper[k], "at most")):
+            if np.isfinite(bound) and abs(theta[k] - bound) <= 1e-8 * max(1.0, abs(bound)):
+                out.append(f"{label} ({word} {bound:g})")
+    return out

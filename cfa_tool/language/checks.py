@@ -296,6 +296,9 @@ def _check_contradictions(spec: Spec) -> None:
     fixed: dict[tuple, tuple[float, ParameterRef]] = {}
     for setting in spec.fixed:
         for ref in setting.refs:
+            if ref.kind == "variance" and setting.value < 0:
+                raise _fail(spec, f"{ref} is fixed to {setting.value:g}, but a variance cannot be negative; fix it to 0 "
+                                  f"or more", ref.location)
             key = _gkey(ref)
             if key in fixed and fixed[key][0] != setting.value:
                 raise _fail(spec, f"{ref} is fixed to {setting.value:g} here but to {fixed[key][0]:g} on line {fixed[key][1].location.line}", ref.location)
@@ -320,6 +323,9 @@ def _check_contradictions(spec: Spec) -> None:
                 lower[key] = bound.lower
             if bound.upper is not None:
                 upper[key] = bound.upper
+            if ref.kind == "variance" and bound.upper is not None and bound.upper < 0:
+                raise _fail(spec, f"{ref} is bounded to at most {bound.upper:g}, but a variance cannot be negative",
+                            ref.location)
             if key in lower and key in upper and lower[key] > upper[key]:
                 raise _fail(spec, f"the bounds on {ref} leave no room: at least {lower[key]:g} and at most {upper[key]:g}", ref.location)
     for group in spec.equal:

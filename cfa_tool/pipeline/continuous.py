@@ -154,7 +154,7 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
         start = starting_values(table, *pooled_moments())
     found = search(likelihood, table, start, options.max_iterations, variance_scaled_problem)
     opt = found.result
-    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations)
+    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper)
     return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, message)
 
 

@@ -239,7 +239,7 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
 
     found = search(ls, table, starting_values(table, R, None), options.max_iterations, variance_scaled_problem)
     opt = found.result
-    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations)
+    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper)
     theta = opt.theta
     n = moments.n_obs
     final = unit_variance_matrices(model.matrices(theta))
@@ -399,7 +399,7 @@ def estimate_ordinal_groups(spec: Spec, groups: list, options, method: Weighting
         start = starting_values(table, S, location, thresholds=tau)
     found = search(objective, table, start, options.max_iterations, variance_scaled_problem)
     opt = found.result
-    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations)
+    message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper)
     return OrdinalEstimation(table, model, objective, opt.theta, opt.value, opt.converged, opt.iterations, message)
 
 

@@ -289,3 +289,15 @@ def test_drift_names_growing_shrinking_and_oscillating_parameters():
     found = drift(trail, trail[0])
     assert found.growing == (0,) and found.shrinking == (1,) and found.oscillating == (2,)
     assert not drift(trail[:3], trail[0])  # too short a trail to judge
+
+
+def test_a_search_held_at_an_impossible_bound_names_the_bound(hs_data):
+    # hostile trial 8: 'bound variance(x1) >= 5' where x1's whole variance is about 1.36 (Holzinger & Swineford 1939,
+    # the item's sample variance, computed here) cannot be met: the search failed with a message that never named the
+    # bound.  The message now says which parameter was held at which bound and what to check.
+    assert hs_data["x1"].var() < 5
+    with pytest.raises(EstimationError) as caught:
+        cfa_tool.fit("factor visual: x1, x2, x3\nbound variance(x1) >= 5\n", hs_data)
+    message = str(caught.value)
+    assert "variance(x1) (at least 5) was held at the model file's bound" in message
+    assert "check that the bounds leave room for the data" in message and caught.value.exit_code == 3

@@ -150,6 +150,11 @@ def _error(text: str) -> ModelError:
         ("factor f: a, b, c\nfix variance(a) = 1\nstart variance(a) = 2\n", 3, 7, "start value for it has no effect"),
         ("factor f: a, b, c\nfix variance(a) = 1\nbound variance(a) >= 0\n", 3, 7, "bound on it has no effect"),
         ("factor f: a, b, c\nbound variance(a) >= 2\nbound variance(a) <= 1\n", 3, 7, "leave no room"),
+        # hostile trial 8: 'fix variance(f) = -1' reached the estimation (exit 3, "starting values ... not positive
+        # definite") instead of naming the line
+        ("factor f: a, b, c\nfix variance(f) = -1\n", 2, 5, "variance(f) is fixed to -1, but a variance cannot be "
+                                                           "negative"),
+        ("factor f: a, b, c\nbound variance(a) <= -0.5\n", 2, 7, "bounded to at most -0.5, but a variance cannot"),
         ("factor f: a, b, c\nfix variance(a) = 1\nfix variance(b) = 2\nequal variance(a), variance(b)\n", 4, 7, "fixed to different values"),
         ("factor f: a, b, c\nequal loading(f, b), variance(c)\n", 2, 7, "one kind"),
         ("factor f: a, b, c\ncovary a, b\nuncorrelated a, b\n", 3, 14, "no statement is needed"),
