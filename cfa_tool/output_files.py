@@ -223,12 +223,18 @@ def check_outputs(outputs: list[tuple[str, str | None]], inputs: list[str | Path
     for option, folder in folders:
         if folder is None:
             continue
+        if folder == "-":
+            raise OptionError(f"{option}: '-' stands for standard output, but the tables are several files that go "
+                              f"into a folder; give a folder's name")
         check_folder(option, folder)
         inside = os.path.realpath(folder)
         for other, target in targets.items():
             if target.is_stdout or target.direct:
                 continue
             real = Path(os.path.realpath(target.given))
+            if str(real) == inside:
+                raise OptionError(f"{option} and {other} name the same path ('{shown(folder)}'): one would make it a "
+                                  f"folder of tables, the other a file; give each its own name")
             if str(real.parent) == inside and (real.suffix.lower() in TABLE_SUFFIXES or real.name == RECORD):
                 raise OptionError(f"{other} writes '{shown(target.given)}' into the {option} folder, where the tables "
                                   f"go; give it another name or place")
