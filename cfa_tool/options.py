@@ -1,4 +1,4 @@
-"""Checks of numeric options, shared by the Python API and the command line.
+"""Checks of numeric (and column-name) options, shared by the Python API and the command line.
 
 Each function returns the value in its proper type or raises :class:`OptionError` with one
 sentence that names the option, the allowed range and the value given.  Library entry
@@ -110,3 +110,11 @@ def sample_sizes(value: object, name: str = "the sample size") -> tuple[int, ...
         twice = next(s for s in sizes if sizes.count(s) > 1)
         raise OptionError(f"{name} {twice} is given twice; give each sample size once")
     return tuple(sorted(sizes))
+
+
+def group_column(value: object) -> str | None:
+    """The group column's name (None: no groups); anything but text, such as a list of names, is an OptionError
+    (checked before the column is looked up, where a list would fail without a message)."""
+    if value is None or isinstance(value, str):
+        return value
+    raise OptionError(f"the group column must be given by its name (text), not {type(value).__name__}")

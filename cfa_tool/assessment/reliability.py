@@ -208,7 +208,9 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     member_l, direct_l = [c.nonzero()[0].tolist() for c in member.T], [c.nonzero()[0].tolist() for c in direct.T]
     negative, against_l = (K < 0).tolist(), against.tolist()
     omega_l, omega_total_l, cr_l, ave_l = omega.tolist(), omega_total.tolist(), cr.tolist(), ave.tolist()
-    turned_l, tied_l, counts_l, higher_l = (direction < 0).tolist(), split.tolist(), counts.tolist(), higher.tolist()
+    # a factor split evenly has no majority to point against (its tie-break only orders the keys)
+    turned_l, tied_l = ((direction < 0) & ~split).tolist(), split.tolist()
+    counts_l, higher_l = counts.tolist(), higher.tolist()
     results = []
     for j, name in enumerate(latent):
         items = member_l[j]

@@ -109,6 +109,9 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
               text_columns: tuple[str, ...] = ()) -> LoadedData:
     missing_codes = missing_codes_option(missing_codes)
     if isinstance(data, pd.DataFrame):
+        if sheet is not None:
+            raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
+                              f"frame; leave the sheet out")
         frame = data
         if missing_codes:
             frame = frame.mask(frame.isin(list(missing_codes)))
@@ -271,6 +274,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     command line reports with exit code 3), whose message says what happened, which parameters
     misbehaved and what to try; a returned result has always converged, so its ``fit`` is always set.
     """
+    opt.group_column(group)
     fit_options = make_options(options)
     design = design_columns(weights, cluster, strata, weight_kind)
     if covariance is None:
@@ -794,6 +798,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
+    opt.group_column(group)
     read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep}
     design = design_columns(weights, cluster, strata, weight_kind)
     if summary_source(data):

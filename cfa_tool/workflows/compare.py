@@ -20,6 +20,7 @@ from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import OptionError, estimation_of
+from cfa_tool.options import group_column
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import fit_moments, full_information_likelihood, model_structure, ordered_moments
 from cfa_tool.language.spec import Spec, with_ordinal_levels
@@ -120,6 +121,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None and not ordinal_items:  # ordinal items always get sandwich errors and adjusted tests
         fit_options = design_test(fit_options, design)
+    group_column(group)
     if summary_source(data):
         refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group)
         if ordinal_items:

@@ -21,6 +21,7 @@ from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
 from cfa_tool.errors import DataError, EstimationError, OptionError, printable
 from cfa_tool.numerics.plain import csv_cell
+from cfa_tool.options import group_column
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
@@ -246,6 +247,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.data.row_ids import duplicate_note, row_ids
 
+    group_column(group)
     if api.summary_source(data):
         raise OptionError(f"'{data}' holds summary statistics; factor scores need the rows of answers")
     chosen = method_option(methods)
