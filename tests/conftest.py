@@ -58,6 +58,21 @@ def simulate_cfa(loadings: np.ndarray, phi: np.ndarray, theta: np.ndarray, n: in
     return pd.DataFrame(data, columns=names)
 
 
+def exact_cfa_rows(loadings: np.ndarray, phi: np.ndarray, theta: np.ndarray, n: int, seed: int,
+                   names=None) -> pd.DataFrame:
+    """Rows whose sample covariance matrix (divisor N) is exactly Sigma = L Phi L' + Theta and whose means are 0:
+    seeded normal draws, whitened by their own covariance and coloured by Sigma's Cholesky factor (a test helper).
+    A fit to them recovers the population values, whatever the random number generator's version draws, for tests
+    whose premise is a population value (a small loading, say) rather than a sample's."""
+    rng = np.random.default_rng(seed)
+    sigma = loadings @ phi @ loadings.T + theta
+    Z = rng.standard_normal((n, len(sigma)))
+    Z -= Z.mean(axis=0)
+    white = np.linalg.solve(np.linalg.cholesky(Z.T @ Z / n), Z.T).T
+    names = names or [f"y{i + 1}" for i in range(len(sigma))]
+    return pd.DataFrame(white @ np.linalg.cholesky(sigma).T, columns=names)
+
+
 FOUR_FACTORS = "factor a: y1, y2, y3\nfactor b: y4, y5, y6\nfactor c: y7, y8, y9\nfactor d: y10, y11, y12\n"
 
 
