@@ -15,7 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.estimation.objective import Evaluation
-from cfa_tool.numerics.linalg import log_det_pd, spd_inverse
+from cfa_tool.numerics.linalg import sample_log_det, spd_inverse
 from cfa_tool.model.implied import StructuredModel
 from cfa_tool.model.rank_two import (basis_vectors, candidate_blocks, cross_term, gradient_and_information, model_columns,
                                      second_derivative_contraction)
@@ -70,7 +70,7 @@ class NormalLikelihood:
         self.n_statistics = len(groups) * (self.p * (self.p + 1) // 2 + (self.p if self.means else 0))
         self.logdet_S = []
         for g in groups:
-            logdet = log_det_pd(g.covariance)
+            logdet = sample_log_det(g.covariance)
             if logdet is None:
                 raise SingularMoments("sample covariance matrix is not positive definite")
             self.logdet_S.append(logdet)

@@ -38,6 +38,7 @@ except ImportError:  # pragma: no cover - depends on the numpy installed
 
 from cfa_tool.estimation.optimizer import CLOSED_FORM_NEWTON_BELOW, NEAR_MINIMUM
 from cfa_tool.model.implied import StructuredModel
+from cfa_tool.numerics.linalg import full_rank_pivots
 
 TOLERANCE = 1e-14  # on the Newton decrement, as for a single fit (optimizer.minimise)
 ARMIJO = 1e-4
@@ -79,7 +80,7 @@ class StackedNormal:
         self.p, self.m = model.p, model.m
         factor, self.usable = _cholesky(self.S)
         self.logdet_S = 2.0 * np.log(np.diagonal(factor, axis1=1, axis2=2)).sum(axis=1)
-        self.usable &= np.isfinite(self.logdet_S)
+        self.usable &= np.isfinite(self.logdet_S) & full_rank_pivots(factor, self.S)
         self._J = model.active_J[0]
         self._identity = model.identity_J[0]
         basis = self._basis = model.bases[0]

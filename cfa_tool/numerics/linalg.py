@@ -29,6 +29,28 @@ def cholesky_log_det(A: np.ndarray) -> tuple[np.ndarray, float] | None:
     return factor, log_det
 
 
+#: the smallest share of an item's variance that the items before it may leave unexplained in a sample covariance
+#: matrix (the squared Cholesky pivot over the diagonal entry) for the matrix to count as of full rank: rounding
+#: leaves pivots of about 1e-16 in a matrix of lower rank (a resample of fewer distinct rows than items), which a
+#: plain Cholesky factorisation may pass
+RANK_TOLERANCE = 1e-12
+
+
+def full_rank_pivots(factor: np.ndarray, A: np.ndarray) -> np.ndarray | bool:
+    """Whether the Cholesky factor(s) ``factor`` of ``A`` (one matrix or a stack) show a matrix of full rank
+    (:data:`RANK_TOLERANCE`)."""
+    pivots = np.diagonal(factor, axis1=-2, axis2=-1) ** 2
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return (pivots / np.diagonal(A, axis1=-2, axis2=-1)).min(axis=-1) > RANK_TOLERANCE
+
+
+def sample_log_det(S: np.ndarray) -> float | None:
+    """log|S| of a sample covariance matrix, or None when it is not positive definite or not of full rank
+    (:func:`full_rank_pivots`)."""
+    found = cholesky_log_det(S)
+    return None if found is None or not full_rank_pivots(found[0], S) else found[1]
+
+
 def log_det_pd(A: np.ndarray) -> float | None:
     """log-determinant of a positive-definite matrix, or None if it is not."""
     found = cholesky_log_det(A)

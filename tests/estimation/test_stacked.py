@@ -167,3 +167,30 @@ def test_the_one_matrix_fallback_gives_what_the_stacked_kernels_give(monkeypatch
     assert found.tolist() == kernel_found.tolist()
     np.testing.assert_allclose(factor[ok], kernel_factor[ok], rtol=1e-12)
     np.testing.assert_allclose(x[found], kernel_x[found], rtol=1e-12)
+
+
+def test_a_resample_of_fewer_distinct_rows_than_items_is_never_fitted():
+    # A bootstrap resample of 7 rows drawn from 5 distinct ones has a sample covariance matrix of rank 4 < 6 items
+    # (numpy.linalg.matrix_rank, an independent computation, says so), for which the ML discrepancy's log|S| does not
+    # exist.  Rounding leaves a Cholesky pivot of about 1e-16 that LAPACK may pass (this one did, see below): on
+    # a new machine 1 of 10 such resamples was 'fitted'.  The full-rank check refuses them in the stacked search and
+    # in a single fit alike.
+    from pathlib import Path
+
+    import pandas as pd
+    from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
+    from cfa_tool.estimation.stacked import StackedNormal
+
+    names = ["q1", "q2", "q3", "q4", "q5", "q6"]
+    data = pd.read_csv(Path(__file__).parents[1] / "commands" / "bad_inputs" / "data" / "good.csv")[names]
+    rows = data.to_numpy(dtype=float)
+    resample = rows[[6, 4, 4, 5, 1, 2, 1]]
+    centred = resample - resample.mean(axis=0)
+    S = centred.T @ centred / len(resample)
+    assert np.linalg.matrix_rank(S) == 4  # LAPACK's dpotrf passed it (info 0) with the OpenBLAS of numpy 2.4
+    good = np.cov(rows, rowvar=False, bias=True)
+    _, model = model_structure(parse_model("factor f: q1, q2, q3\nfactor g: q4, q5, q6\n"), None, False)
+    stacked = StackedNormal(model, np.stack([good, S, good]))
+    assert stacked.usable.tolist() == [True, False, True]
+    with pytest.raises(SingularMoments):
+        NormalLikelihood(model, [GroupMoments(S, resample.mean(axis=0), len(resample))])
