@@ -263,15 +263,16 @@ ABOUT_THE_FIT = "About the fit (not the scored data): "
 
 
 def warnings(result) -> list[str]:
-    """What the report says before its tables: the fit's warnings (said to be about the fit when other data are
-    scored), then the cautions about the rows' scores (rows scored without an answer to a factor's items)."""
+    """What the report says before its tables: the cautions about the rows' scores first (rows in a group the fit
+    does not have, rows scored without an answer to a factor's items), then the fit's warnings (said to be about
+    the fit when other data are scored)."""
     # the fit's note on reading the fit indices of ordinal items: the scores' report shows none
     fitted = [w for w in result.fit.warnings if w != ORDINAL_NOTE]
     if result.scored_source:
         # the fit's advice named its own options; scoring other data takes none of them
         option = f" ({Remedy.COMPLETE_ROWS.option})"
         fitted = [ABOUT_THE_FIT + w.replace(option, "") for w in fitted]
-    return fitted + list(result.warnings)
+    return list(result.warnings) + fitted
 
 
 def scores_report(result):

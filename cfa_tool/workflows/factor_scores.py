@@ -442,6 +442,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     base = models[0].base if ordinal else models[0]
     rows = _numeric(frame, base.items, source)
     group_of_row = _group_keys(frame, group) if group is not None else np.full(len(frame), None, dtype=object)
+    unknown_groups = _unknown_groups(group_of_row, labels, group, source) if group is not None else None
     from cfa_tool.scoring.linear import score_rows
     from cfa_tool.scoring.ordinal import eap_scores
 
@@ -476,6 +477,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors, answered)
     warnings = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal)
+    if unknown_groups:
+        warnings.insert(0, unknown_groups)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names")
     if group is not None:
         from cfa_tool.data.labels import label_notes
@@ -714,6 +717,31 @@ def _numeric(frame: pd.DataFrame, items: tuple[str, ...], source: str) -> np.nda
     from cfa_tool.data.moments import _numeric_rows
 
     return _numeric_rows(frame, items, source)
+
+
+def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -> str | None:
+    """The caution (first in the report) for rows whose group the earlier fit does not have, which get no scores,
+    with the fit's group nearest to each label (a label differing in case only, say); an OptionError when no row
+    is in one of the fit's groups, since then nothing would be scored.  None when every row's group is known."""
+    from cfa_tool.suggest import close_names
+
+    known = set(labels)
+    given = pd.Series([v for v in group_of_row if v is not None and v not in known], dtype=object)
+    if given.empty:
+        return None
+    counts = given.value_counts()
+    shown = []
+    for label, n in list(counts.items())[:6]:
+        near = close_names(str(label), [str(x) for x in labels])
+        shown.append(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''}"
+                     + (f"; the fit has '{printable(near[0])}'" if near else "") + ")")
+    more = f" and {len(counts) - 6} more" if len(counts) > 6 else ""
+    fitted = ", ".join(f"'{printable(x)}'" for x in labels)
+    text = (f"{int(counts.sum())} rows of {source} are in groups of '{printable(group)}' that the earlier fit does not "
+            f"have: {', '.join(shown)}{more}; the fit's groups are {fitted}, and a label must match one as written")
+    if not any(v in known for v in group_of_row if v is not None):
+        raise OptionError(f"no row of {source} can be scored: {text}")
+    return text + "; those rows get no scores"
 
 
 def _group_keys(frame: pd.DataFrame, group: str) -> np.ndarray:

@@ -235,3 +235,32 @@ def test_words_that_said_a_little_more_or_less_than_happened(tmp_path, model_fil
     flat = " ".join(text.split())
     assert "About the fit (not the scored data): 1 of 301 rows miss some answers" in flat
     assert "--incomplete-rows" not in flat
+
+
+def test_rows_in_groups_the_fit_does_not_have_are_said_first_and_none_scored_is_an_error(tmp_path, model_file, hs_data,
+                                                                                          capsys):
+    # hostile trial 8: a fit grouped by school scored a file whose labels were written in capitals: exit 0, "Scores
+    # of 301 rows", every score cell empty, and only a table near the end said why.  Now a caution comes first (with
+    # the fit's label that differs in case only), and a file none of whose rows is in a fitted group is an error.
+    saved = tmp_path / "grouped.json"
+    hs_data.to_csv(tmp_path / "rows.csv")
+    assert _run(["fit", model_file, "--data", tmp_path / "rows.csv", "--group-column", "school", "--json", saved],
+                capsys)[0] == 0
+    upper = hs_data.assign(school=hs_data["school"].str.upper())
+    upper.to_csv(tmp_path / "upper.csv")
+    code, _, err = _run(["scores", model_file, "--data", tmp_path / "upper.csv", "--from-fit", saved, "--output",
+                         tmp_path / "none.csv"], capsys)
+    assert code == 2 and "no row of" in err and "'PASTEUR' (156 rows; the fit has 'Pasteur')" in err
+    assert not (tmp_path / "none.csv").exists()
+    some = hs_data.copy()
+    some.loc[some.index[:10], "school"] = "pasteur"
+    some.to_csv(tmp_path / "some.csv")
+    out = tmp_path / "some_scores.csv"
+    code, text, err = _run(["scores", model_file, "--data", tmp_path / "some.csv", "--from-fit", saved, "--output", out],
+                           capsys)
+    flat = " ".join(text.split())
+    assert code == 0, err
+    assert "10 rows of" in flat and "'pasteur' (10 rows; the fit has 'Pasteur')" in flat
+    assert flat.index("'pasteur' (10 rows") < flat.index("Scores of")  # before the tables
+    scored = pd.read_csv(out)
+    assert scored.filter(like="_regression").notna().all(axis=1).sum() == len(hs_data) - 10
