@@ -336,8 +336,11 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         information = Information.EXPECTED if likelihood.complete_data else Information.OBSERVED
     method = FitMethod(Estimator.MAXIMUM_LIKELIHOOD, options.test, information,
                        MissingData.LISTWISE if likelihood.complete_data else MissingData.FULL_INFORMATION)
+    each = [r.data.ranges for r in group_results]
+    ranges = tuple(zip(*(np.min([[lo for lo, _ in e] for e in each], axis=0).tolist(),
+                         np.max([[hi for _, hi in e] for e in each], axis=0).tolist()))) if all(each) else ()
     overall = DataSummary(first.source, sum(m.rows_read for _, m in groups), sum(m.rows_dropped for _, m in groups),
-                          n_total, table.observed, item_means, item_sds)
+                          n_total, table.observed, item_means, item_sds, ranges=ranges)
     return fit_result(spec=spec, method=method, converged=est.converged, iterations=est.iterations, message=est.message,
                       theta=theta, n_obs=n_total, data=overall, observed=table.observed, latent=table.latent, fit=fit,
                       robust=robust, estimates=estimates, modification_indices=mis, groups=group_results,
@@ -418,9 +421,11 @@ def _summary(m: SampleMoments, observed: tuple[str, ...], gm: GroupMoments) -> D
     if rows is not None and rows is m.rows and tuple(m.names) != tuple(observed):
         rows = rows[:, [m.names.index(x) for x in observed]]
     shape = item_shape(rows) if rows is not None else None
+    ranges = () if rows is None or not len(rows) else tuple(zip(np.nanmin(rows, axis=0).tolist(),
+                                                                 np.nanmax(rows, axis=0).tolist()))
     return DataSummary(m.source, m.rows_read, m.rows_dropped, m.n_obs, observed,
                        tuple(gm.mean.tolist()), tuple(np.sqrt(np.diag(gm.covariance)).tolist()),
-                       *((shape.answered, shape.skewness, shape.kurtosis) if shape is not None else ()))
+                       *((shape.answered, shape.skewness, shape.kurtosis) if shape is not None else ()), ranges=ranges)
 
 
 @dataclass(frozen=True)

@@ -174,6 +174,9 @@ class DataSummary:
     missing_codes: tuple[float, ...] = ()
     # summary statistics: which matrix was analysed (data.summary_stats.AnalysedMatrix); None for rows of answers
     analysed: object | None = None
+    # per item, the lowest and highest answer of the rows analysed (empty without rows), so that scoring other data
+    # with this fit can name answers outside them (a file coded 0-4 scored with a fit of answers coded 1-5)
+    ranges: tuple[tuple[float, float], ...] = ()
 
     @property
     def pair_range(self) -> tuple[int, int] | None:
@@ -214,6 +217,8 @@ class DataSummary:
             out["missing_codes"] = list(self.missing_codes)
         if self.analysed is not None:
             out["matrix_analysed"] = self.analysed.name.lower()
+        if self.ranges:
+            out["answer_ranges"] = {name: list(r) for name, r in zip(self.variables, self.ranges)}
         return clean(out)
 
 

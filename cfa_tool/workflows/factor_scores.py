@@ -477,6 +477,10 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors, answered)
     warnings = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal)
+    if not ordinal:
+        outside = _outside_fitted_ranges(result.data, base.items, rows, source)
+        if outside:
+            warnings.insert(0, outside)
     if unknown_groups:
         warnings.insert(0, unknown_groups)
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names")
@@ -586,7 +590,9 @@ def read_saved_fit(path) -> SavedFit:
                               tuple(d["variables"]), means,
                               tuple(float(v) for v in d["sds"]) if d["sds"] is not None else (float("nan"),) * len(means),
                               categories=categories if counts else (), not_given=not_given,
-                              missing_codes=tuple(float(v) for v in d.get("missing_codes", ())))
+                              missing_codes=tuple(float(v) for v in d.get("missing_codes", ())),
+                              ranges=tuple((float(d["answer_ranges"][x][0]), float(d["answer_ranges"][x][1]))
+                                           for x in d["variables"]) if d.get("answer_ranges") else ())
         model = payload["model"]
     except (ValueError, KeyError, TypeError, AttributeError):
         raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)") from None
@@ -717,6 +723,32 @@ def _numeric(frame: pd.DataFrame, items: tuple[str, ...], source: str) -> np.nda
     from cfa_tool.data.moments import _numeric_rows
 
     return _numeric_rows(frame, items, source)
+
+
+def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> str | None:
+    """The caution for answers of the scored file outside the lowest and highest answers of the rows the earlier fit
+    analysed (``data``: its DataSummary, whose ``ranges`` are empty for a fit of summary statistics): a file coded
+    0-4 scored with a fit of answers coded 1-5 gets scores shifted by the difference, with no other sign of it."""
+    if not data.ranges:
+        return None
+    fitted = dict(zip(data.variables, data.ranges))
+    found = []
+    with np.errstate(invalid="ignore"):
+        for k, item in enumerate(items):
+            if item not in fitted:
+                continue
+            lo, hi = fitted[item]
+            column = rows[:, k]
+            below, above = int((column < lo).sum()), int((column > hi).sum())
+            if below or above:
+                found.append((item, below + above, lo, hi))
+    if not found:
+        return None
+    listed = "; ".join(f"'{printable(item)}', {n} answer{'s' if n != 1 else ''} outside {lo:g} to {hi:g}"
+                       for item, n, lo, hi in found[:5]) + (f"; and {len(found) - 5} more items" if len(found) > 5 else "")
+    return (f"{source} holds answers outside the range of the rows the earlier fit analysed: {listed}; scores of such "
+            f"answers extrapolate the fit, and if the files code the answers differently (0 to 4 against 1 to 5, "
+            f"say) every score is shifted: recode one file as the other before scoring")
 
 
 def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -> str | None:

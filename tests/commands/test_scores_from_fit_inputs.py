@@ -264,3 +264,30 @@ def test_rows_in_groups_the_fit_does_not_have_are_said_first_and_none_scored_is_
     assert flat.index("'pasteur' (10 rows") < flat.index("Scores of")  # before the tables
     scored = pd.read_csv(out)
     assert scored.filter(like="_regression").notna().all(axis=1).sum() == len(hs_data) - 10
+
+
+def test_answers_outside_the_fitted_rows_range_are_said_first(tmp_path, model_file, hs_data, capsys):
+    # hostile trial 8: a second sample coded one lower than the first (0-4 against 1-5) was scored with the first's
+    # fit with no word, every score shifted.  The fit's JSON now keeps each item's lowest and highest answer (here
+    # the data's own min and max, read with pandas), and answers of the scored file outside them are named first.
+    saved = tmp_path / "fit.json"
+    hs_data.to_csv(tmp_path / "rows.csv")
+    assert _run(["fit", model_file, "--data", tmp_path / "rows.csv", "--json", saved], capsys)[0] == 0
+    ranges = json.loads(saved.read_text())["data"]["answer_ranges"]
+    assert ranges["x1"] == [hs_data["x1"].min(), hs_data["x1"].max()]
+    shifted = hs_data.copy()
+    shifted[ITEMS] = shifted[ITEMS] - 1
+    shifted.to_csv(tmp_path / "shifted.csv")
+    code, text, err = _run(["scores", model_file, "--data", tmp_path / "shifted.csv", "--from-fit", saved, "--output",
+                            tmp_path / "s.csv"], capsys)
+    flat = " ".join(text.split())
+    below = int((shifted["x1"] < hs_data["x1"].min()).sum())
+    assert code == 0, err
+    assert below >= 1
+    assert (f"'x1', {below} answer{'s' if below != 1 else ''} outside {hs_data['x1'].min():g} to "
+            f"{hs_data['x1'].max():g}") in flat
+    assert flat.index("outside the range of the rows the earlier fit analysed") < flat.index("Scores of")
+    # the fit's own rows: nothing to say
+    code, text, _ = _run(["scores", model_file, "--data", tmp_path / "rows.csv", "--from-fit", saved, "--output",
+                          tmp_path / "own.csv"], capsys)
+    assert code == 0 and "outside the range" not in text
