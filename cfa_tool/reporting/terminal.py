@@ -61,27 +61,88 @@ class _ColumnParts:
         self.report = report
 
     def __rich_console__(self, console, options):
-        report = self.report
-        widths = [max([len(c) for c in [report.columns[j], *(row[j] for row in report.rows)]] or [0]) + 3
-                  for j in range(len(report.columns))]
-        parts = column_parts(widths, options.max_width, label_columns(report.align, widths, options.max_width))
-        for k, columns in enumerate(parts):
+        report, room = self.report, options.max_width
+        widths = _widths(report)
+        # a matrix of long-named items too wide for the room: numbers for names, the names in a key under it
+        keyed = T.matrix_key(report) if sum(widths) > room and widths[0] > room / 4 else None
+        if keyed is not None:
+            report = keyed[0]
+            widths = _widths(report)
+        labels = label_columns(report.align, widths, room)
+        for k, columns in enumerate(column_parts(_wrapped(widths, report.align, room), room, labels)):
             if k:
                 yield Text(f"({printable(report.title)}, continued)", style="dim")
-            yield self._table(columns)
+            # each part's text as wide as the room beside its own number columns allows
+            part = _wrapped([widths[j] for j in columns], tuple(report.align[j] for j in columns), room)
+            yield self._table(report, columns, dict(zip(columns, part)))
+        if keyed is not None:
+            yield _key(keyed[1])
 
-    def _table(self, columns: list[int]) -> Table:
-        report = self.report
+    @staticmethod
+    def _table(report: ReportTable, columns: list[int], widths: dict[int, float]) -> Table:
         table = _table("", [(report.columns[j], "left" if report.align[j] == "l" else "right") for j in columns])
         for column, j in zip(table.columns, columns):
-            # text may wrap in a narrow terminal (never cut short); numbers stay whole
+            # text wraps at its column's width, within words only when a word is longer (never cut short);
+            # numbers stay whole
             column.overflow = "fold"
             column.no_wrap = report.align[j] == "r"
+            column.max_width = None if column.no_wrap else max(1, int(widths[j]) - CELL_PADDING)
         faint = set(report.faint)
+        # a part of a matrix of the items: the rows of its columns' items and those with a value in them
+        shown = set(range(len(report.rows))) if not report.matrix else {
+            k for k, (row, number) in enumerate(zip(report.rows, T.matrix_row_numbers(report)))
+            if number in {report.columns[j] for j in columns} or any(row[j] for j in columns[1:])}
         for k, row in enumerate(report.rows):
+            if k not in shown:
+                continue
             cells = [Text(printable(row[j]), style="dim") if (k, j) in faint else row[j] for j in columns]
             table.add_row(*cells, style="bold red" if k in report.flagged else None)
         return table
+
+
+CELL_PADDING = 3  # characters a column takes beside its text: padding and the gap to the next column
+
+
+def _widths(report: ReportTable) -> list[float]:
+    """Each column's width in characters: its longest cell or heading and its padding."""
+    return [max([len(c) for c in [report.columns[j], *(row[j] for row in report.rows)]] or [0]) + CELL_PADDING
+            for j in range(len(report.columns))]
+
+
+LEAST_TEXT = 16  # characters a text column keeps when it is narrowed to wrap (or its own width, when less)
+
+
+def _wrapped(widths: list[float], align: tuple[str, ...], room: int) -> list[float]:
+    """The widths with the widest text columns narrowed, their text to wrap, so that the number columns fit
+    beside them in one part: when the table is wider than ``room``, the text columns share what the number
+    columns leave (at least a third of the room), the widest cut to one width and the narrower kept whole,
+    none narrower than ``LEAST_TEXT``."""
+    if sum(widths) <= room:
+        return widths
+    text = sorted((widths[j] for j, a in enumerate(align) if a == "l"), reverse=True)
+    share = max(room - (sum(widths) - sum(text)), room / 3)
+    if not text or sum(text) <= share:
+        return widths
+    # the cap: the widest k columns cut to one width, the others whole, together ``share``
+    cap = share / len(text)
+    for k in range(1, len(text) + 1):
+        level = (share - sum(text[k:])) / k
+        if k == len(text) or level >= text[k]:
+            cap = level
+            break
+    cap = max(int(cap), LEAST_TEXT + CELL_PADDING)
+    return [min(w, cap) if a == "l" else w for w, a in zip(widths, align)]
+
+
+def _key(entries: tuple[tuple[str, str], ...]) -> Table:
+    """The key under a matrix drawn with numbers for its items: each number and its item's name, the name
+    wrapped under itself."""
+    grid = Table.grid(padding=(0, 1))
+    grid.add_column(no_wrap=True, justify="right")
+    grid.add_column(overflow="fold")
+    for short, name in entries:
+        grid.add_row(short, Text(printable(name)))
+    return grid
 
 
 def _bullets(lines) -> Table:
