@@ -46,8 +46,9 @@ def _table(title: str, columns: list[tuple[str, str]]) -> Table:
 def rich_table(report: ReportTable) -> Group:
     """The table with its title above and its note below, both wrapped at the terminal's width (as part of
     the table they would wrap at the table's width, a narrow column of words under a narrow table).  A table
-    wider than the terminal is shown in parts of whole columns, each with the first column again: a number is
-    never broken across lines (a residual '-.02' printed as '-.0' above '2' reads as another number)."""
+    wider than the terminal first wraps its widest text columns (long item names) and its number columns'
+    headings; what still does not fit is shown in parts of whole columns, each with the first column again: a
+    number is never broken across lines (a residual '-.02' printed as '-.0' above '2' reads as another number)."""
     parts = [Text(printable(report.title), style="bold"), _ColumnParts(report)]  # (Text is not escaped otherwise)
     if report.note:
         parts += [Text(printable(report.note, keep_newlines=True), style="dim"), Text("")]
@@ -62,19 +63,25 @@ class _ColumnParts:
 
     def __rich_console__(self, console, options):
         report, room = self.report, options.max_width
-        widths = _widths(report)
+        whole = _widths(report)
         # a matrix of long-named items too wide for the room: numbers for names, the names in a key under it
-        keyed = T.matrix_key(report) if sum(widths) > room and widths[0] > room / 4 else None
+        keyed = T.matrix_key(report) if sum(whole) > room and whole[0] > room / 4 else None
         if keyed is not None:
             report = keyed[0]
-            widths = _widths(report)
-        labels = label_columns(report.align, widths, room)
-        for k, columns in enumerate(column_parts(_wrapped(widths, report.align, room), room, labels)):
+            whole = _widths(report)
+        narrow = _widths(report, wrapped_headings=True)
+        labels = label_columns(report.align, whole, room)
+        for k, columns in enumerate(column_parts(_wrapped(narrow, report.align, room), room, labels)):
             if k:
                 yield Text(f"({printable(report.title)}, continued)", style="dim")
-            # each part's text as wide as the room beside its own number columns allows
-            part = _wrapped([widths[j] for j in columns], tuple(report.align[j] for j in columns), room)
-            yield self._table(report, columns, dict(zip(columns, part)))
+            # each part's text as wide as the room beside its own number columns allows, their headings wrapped
+            # between words where the room is short
+            part = dict(zip(columns, _wrapped([narrow[j] for j in columns], tuple(report.align[j] for j in columns),
+                                              room)))
+            for j in sorted(columns, key=lambda j: whole[j] - part[j]):  # headings whole while the room lasts
+                if report.align[j] == "r" and sum(part.values()) - part[j] + whole[j] <= room:
+                    part[j] = whole[j]
+            yield self._table(report, columns, part)
         if keyed is not None:
             yield _key(keyed[1])
 
@@ -85,8 +92,9 @@ class _ColumnParts:
             # text wraps at its column's width, within words only when a word is longer (never cut short);
             # numbers stay whole
             column.overflow = "fold"
-            column.no_wrap = report.align[j] == "r"
-            column.max_width = None if column.no_wrap else max(1, int(widths[j]) - CELL_PADDING)
+            column.max_width = max(1, int(widths[j]) - CELL_PADDING)
+            if report.align[j] == "r":  # a number column's heading wraps between its words, its numbers never
+                column.min_width = max([len(row[j]) for row in report.rows] or [1])
         faint = set(report.faint)
         # a part of a matrix of the items: the rows of its columns' items and those with a value in them
         shown = set(range(len(report.rows))) if not report.matrix else {
@@ -103,10 +111,14 @@ class _ColumnParts:
 CELL_PADDING = 3  # characters a column takes beside its text: padding and the gap to the next column
 
 
-def _widths(report: ReportTable) -> list[float]:
-    """Each column's width in characters: its longest cell or heading and its padding."""
-    return [max([len(c) for c in [report.columns[j], *(row[j] for row in report.rows)]] or [0]) + CELL_PADDING
-            for j in range(len(report.columns))]
+def _widths(report: ReportTable, wrapped_headings: bool = False) -> list[float]:
+    """Each column's width in characters: its longest cell or heading (with ``wrapped_headings``, of a number
+    column the heading's longest word) and its padding."""
+    def head(j: int) -> int:
+        wrap = wrapped_headings and report.align[j] == "r"
+        return max(map(len, report.columns[j].split()), default=0) if wrap else len(report.columns[j])
+
+    return [max([head(j), *(len(row[j]) for row in report.rows)]) + CELL_PADDING for j in range(len(report.columns))]
 
 
 LEAST_TEXT = 16  # characters a text column keeps when it is narrowed to wrap (or its own width, when less)

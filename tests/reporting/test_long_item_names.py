@@ -23,7 +23,7 @@ from cfa_tool.reporting.terminal import report_text
 from cfa_tool.reporting.text_formats import csv_table, latex_table, report_markdown
 
 from tests.conftest import THREE_FACTORS, simulate_cfa
-from tests.reporting.test_diagram_layouts import SVG, overlaps
+from tests.reporting.test_diagram_layouts import CHROMIUM, SVG, check_in_a_browser, overlaps
 
 QUESTIONS = [
     "The bus usually arrives at my stop at the time the timetable promises.",
@@ -111,6 +111,11 @@ def test_every_item_is_drawn_with_a_short_label_and_named_in_the_key(long_fit):
         assert len(root.findall(f".//{SVG}line[@class='loading']")) == 15
         assert _key(svg) == [(f"I{k + 1}", q) for k, q in enumerate(QUESTIONS)]
         assert overlaps(svg) == []
+
+
+@pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed (.ci/run installs it)")
+def test_in_a_browser_the_key_overlaps_nothing(long_fit, long_shapes, tmp_path):
+    check_in_a_browser([diagram_file(long_fit), diagram_file(long_shapes["bifactor"])], tmp_path)
 
 
 def test_a_model_with_short_names_is_drawn_with_its_names_and_no_key(hs_data):
@@ -212,3 +217,23 @@ def test_a_matrix_saved_without_the_first_items_row_is_numbered_as_before():
     wide = T.ReportTable("r", "R", ("Item",) + tuple(map(str, range(1, 30))), ("l",) + ("r",) * 29,
                          tuple((f"{k + 1} q{k + 1}",) + ("",) * 29 for k in range(30)), matrix=True)
     assert T.terminal_matrix_left_out(wide).startswith("R: 30 items")
+
+
+def test_a_table_wider_than_the_terminal_wraps_its_widest_text_and_its_number_headings():
+    from rich.console import Console
+
+    from cfa_tool.reporting.terminal import rich_table
+
+    table = T.ReportTable("t", "Counts", ("Reason", "Method", "Random values, 95th percentile", "Rows"),
+                          ("l", "l", "r", "r"),
+                          (("no answers on any of the model's items, nor on the group column", "joint", "0.441", "12"),
+                           ("a reason", "each factor alone", "1.390", "3")))
+    buffer = io.StringIO()
+    Console(file=buffer, width=60, no_color=True).print(rich_table(table))
+    text = buffer.getvalue()
+    assert "continued" not in text and max(len(line) for line in text.split("\n")) <= 60
+    # the text wrapped between words; the numbers whole, their long heading wrapped between its words
+    assert "each factor alone" in text and "no answers on any of the model's items, nor on the group column" not in text
+    assert re.search(r"0\.441\s+12", text) and re.search(r"1\.390\s+3", text)
+    heading = [line.split() for line in text.split("\n")[2:6]]
+    assert [words[0] for words in heading[:3]] == ["Random", "values,", "95th"] and heading[3][-2:] == ["percentile", "Rows"]
