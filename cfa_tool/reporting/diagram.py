@@ -54,6 +54,21 @@ METHOD_FILL = "#e6e6e6"  # method factors: a way of answering, not a trait
 FACTOR_FILL = "#eef3fb"
 
 
+LONG_NAME = 20  # an item name longer than this: every item drawn with a short label, named in a key under the drawing
+KEY_TITLE = "Items"
+
+
+def item_labels(result) -> dict[str, str]:
+    """What each item's box shows when some item's name is long (more than ``LONG_NAME`` characters, as the full
+    question texts of a survey platform's export): I1, I2, ... in the order of the data's items (the numbers of
+    the item matrices of the report), named in a key under the drawing; empty when every name is short (the
+    names drawn themselves)."""
+    observed = list(result.observed)
+    if all(len(name) <= LONG_NAME for name in observed):
+        return {}
+    return {name: f"I{k + 1}" for k, name in enumerate(observed)}
+
+
 def _box_width(name: str) -> float:
     return max(46.0, 7.4 * len(name) + 18.0)
 
@@ -126,6 +141,11 @@ class _Layout:
     listed_loadings: list[tuple[str, str]] = field(default_factory=list)  # (factor, item or factor) listed, not drawn
     table_top: float = MARGIN  # where the lists of values not drawn begin
     continued: list[tuple[str, tuple[str, ...]]] = field(default_factory=list)  # (factor, its items in a later band)
+    shown: dict[str, str] = field(default_factory=dict)  # the short label drawn for an item (see item_labels)
+
+    def text(self, name: str) -> str:
+        """What the drawing shows for a factor or item."""
+        return self.shown.get(name, name)
 
 
 def _cross_factors(latent, children, obs_set, methods) -> frozenset[str]:
@@ -147,7 +167,7 @@ def _layout(result, rows, obs_set) -> _Layout:
     children: dict[str, list[str]] = {f: [] for f in latent}
     for r in loadings:
         children[r.variables[0]].append(r.variables[1])
-    lay = _Layout()
+    lay = _Layout(shown=item_labels(result))
     level = lay.level
 
     def level_of(f: str, seen: frozenset = frozenset()) -> int:
@@ -169,7 +189,7 @@ def _layout(result, rows, obs_set) -> _Layout:
     lay.home = home
     homes = [f for f in latent if f in home.values()]
     lay.order = sorted(observed, key=lambda x: (homes.index(home[x]) if x in home else len(homes), observed.index(x)))
-    lay.widths = {x: _box_width(x) for x in lay.order}
+    lay.widths = {x: _box_width(lay.text(x)) for x in lay.order}
     # a model whose items do not fit in one row is drawn in bands of whole factors; the factors whose lines
     # would cross the bands (higher-order, general and method factors) are then drawn apart, above the bands
     blocks: list[list[str]] = []
@@ -243,7 +263,7 @@ def _layout(result, rows, obs_set) -> _Layout:
         elif r.kind == "loading" and (a in lay.apart or lay.band_of[a] != lay.band_of[b]):
             lay.listed_loadings.append((a, b))
     for entries in _lists(lay):
-        y += 18 + 16 * math.ceil(len(entries) / _table_columns(entries, width)) + 10
+        y += 18 + 16 * math.ceil(len(entries) / _table_columns(entries, width, lay.text)) + 10
     for b in range(len(bands)):
         in_band = [f for f in latent if lay.band_of[f] == b and f not in lay.bottom and f not in lay.apart]
         arcs = [r for r in rows if r.kind == "factor_covariance" and not lay.banded and not any(v in lay.bottom for v in r.variables)]
@@ -327,27 +347,27 @@ def _lists(lay: _Layout) -> list[list]:
 LIST_SIZE = 11  # font size of the lists above the drawing
 
 
-def _entry_width(entries) -> float:
+def _entry_width(entries, shown=str) -> float:
     """Width of one column of a list: 260 units, or more for long entries (their text, estimated as the layout
     tests do, and a gap)."""
-    longest = max((len(_entry_text(e)) for e in entries), default=0)
+    longest = max((len(_entry_text(e, shown=shown)) for e in entries), default=0)
     return max(260.0, TEXT_EM * LIST_SIZE * (longest + 6) + 20)
 
 
-def _entry_text(entry, value: str = "") -> str:
+def _entry_text(entry, value: str = "", shown=str) -> str:
     """An entry of a list above the drawing: 'f1 on g' for a loading, 'a with b' or 'a with b (residuals)' for a
-    correlation (a value's room reserved when ``value`` is empty)."""
+    correlation (a value's room reserved when ``value`` is empty), each name as ``shown`` draws it."""
     if len(entry) == 2:
         factor, target = entry
-        text = f"{target} on {factor}"
+        text = f"{shown(target)} on {shown(factor)}"
     else:
         kind, a, b = entry
-        text = f"{a} with {b}{'' if kind == 'factor_covariance' else ' (residuals)'}"
+        text = f"{shown(a)} with {shown(b)}{'' if kind == 'factor_covariance' else ' (residuals)'}"
     return f"{text}: {value}" if value else text
 
 
-def _table_columns(table, width: float) -> int:
-    return max(1, int((width - 2 * MARGIN) // _entry_width(table)))
+def _table_columns(table, width: float, shown=str) -> int:
+    return max(1, int((width - 2 * MARGIN) // _entry_width(table, shown)))
 
 
 def _drop(level: int) -> float:
@@ -384,8 +404,15 @@ def diagram_file(result) -> str:
 def _document(result, groups: list[int], legend: bool) -> str:
     drawings = [_draw(result, g) for g in groups]
     lines = legend_lines(result) if legend else []
-    width = max([w for w, _, _ in drawings] + [2 * MARGIN + TEXT_EM * 11 * len(line) for line in lines])
-    height = sum(h for _, h, _ in drawings) + (10 + 18 * len(lines) if lines else 0)
+    key = [(short, name) for name, short in item_labels(result).items()]
+    indent = TEXT_EM * LIST_SIZE * (max((len(short) for short, _ in key), default=0) + 1)  # from a label to its name
+    key_column = indent + TEXT_EM * LIST_SIZE * max((len(name) for _, name in key), default=0) + 30  # with a gap
+    width = max([w for w, _, _ in drawings] + [2 * MARGIN + TEXT_EM * 11 * len(line) for line in lines]
+                + ([2 * MARGIN + key_column] if key else []))
+    key_columns = max(1, int((width - 2 * MARGIN) // key_column)) if key else 1
+    key_rows = math.ceil(len(key) / key_columns)
+    key_height = 18 + 16 * key_rows + 10 if key else 0
+    height = sum(h for _, h, _ in drawings) + key_height + (10 + 18 * len(lines) if lines else 0)
     labels = [result.groups[g].label for g in groups]
     title = esc(result.model_name) + ("" if labels == [None] else " — group " + ", ".join(esc(str(x)) for x in labels))
     parts = [
@@ -404,6 +431,15 @@ def _document(result, groups: list[int], legend: bool) -> str:
         parts.extend(body)
         parts.append("</g>")
         y += h
+    if key:  # the items' names, under the drawing of every group
+        parts.append(f'<text class="key-title" x="{MARGIN:.1f}" y="{y + 14:.1f}" font-size="{LIST_SIZE}" '
+                     f'font-weight="bold">{KEY_TITLE}</text>')
+        for k, (short, name) in enumerate(key):
+            x, line_y = MARGIN + key_column * (k // key_rows), y + 32 + 16 * (k % key_rows)
+            parts.append(f'<text class="key-label" x="{x:.1f}" y="{line_y:.1f}" font-size="{LIST_SIZE}" '
+                         f'font-weight="bold">{esc(short)}</text>')
+            parts.append(f'<text class="key" x="{x + indent:.1f}" y="{line_y:.1f}" font-size="{LIST_SIZE}">{esc(name)}</text>')
+        y += key_height
     problems = getattr(result, "problems", ())
     for k, line in enumerate(lines):
         colour = f' fill="{PROBLEM_COLOUR}"' if problems and k == len(lines) - 1 else ""
@@ -441,14 +477,14 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
         title = "Loadings not drawn as arrows" if loadings else "Correlations not drawn as arcs"
         parts.append(f'<text class="table-title" x="{MARGIN:.1f}" y="{y + 2:.1f}" font-size="{LIST_SIZE}" '
                      f'font-weight="bold">{title}</text>')
-        columns = _table_columns(entries, lay.width)
+        columns = _table_columns(entries, lay.width, lay.text)
         per = math.ceil(len(entries) / columns)
         for k, entry in enumerate(entries):
             kind, variables = ("loading", entry) if loadings else (entry[0], entry[1:])
             r = next(r for r in rows if r.kind == kind and r.variables == variables)
             bad = flagged(kind, variables) or loadings and result.groups[group].r_squared.get(variables[1], 0.0) > 1.0
-            parts.append(_label(MARGIN + _entry_width(entries) * (k // per), y + 20 + 16 * (k % per),
-                                _entry_text(entry, unit(r.standardized, 2)), size=LIST_SIZE, anchor="start",
+            parts.append(_label(MARGIN + _entry_width(entries, lay.text) * (k // per), y + 20 + 16 * (k % per),
+                                _entry_text(entry, unit(r.standardized, 2), lay.text), size=LIST_SIZE, anchor="start",
                                 cls="listed-loading" if loadings else "listed-correlation", problem=bad))
         y += 18 + 16 * per + 10
     # loadings: an item's home factor first, so that a cross-loading's value moves along its line if it would
@@ -528,7 +564,7 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
         parts.append(f'<rect class="indicator" x="{centre[name] - w / 2:.1f}" y="{top:.1f}" width="{w:.1f}" height="{BOX_H}" '
                      f'fill="#ffffff" stroke="#333" stroke-width="1.3"/>')
         parts.append(f'<text class="name" x="{centre[name]:.1f}" y="{top + BOX_H / 2 + 4:.1f}" font-size="12" '
-                     f'text-anchor="middle">{esc(name)}</text>')
+                     f'text-anchor="middle">{esc(lay.text(name))}</text>')
         bad = flagged("residual_variance", (name,))
         cx, cy = _residual_centre(name, lay)
         parts.append(f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" '

@@ -501,13 +501,50 @@ def residual_table(result, group: int = 0) -> ReportTable | None:
     names = result.observed
     if len(names) > MAX_MATRIX or len(names) < 2 or not result.converged:
         return None
-    r = result.groups[group].residual_correlations
-    rows = [[f"{i + 1} {name}"] + [unit(r[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
-            for i, name in enumerate(names) if i > 0]
-    table = _table(f"residuals_{group}", "Residual correlations (sample minus model)",
-                   [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows,
-                   "Positive: the model underestimates the correlation of the two items; negative: it overestimates it.")
-    return replace(table, heat=True, matrix=True)
+    table = _item_matrix(f"residuals_{group}", "Residual correlations (sample minus model)", names,
+                         result.groups[group].residual_correlations,
+                         "Positive: the model underestimates the correlation of the two items; negative: it "
+                         "overestimates it.")
+    return replace(table, heat=True)
+
+
+def _item_matrix(key: str, title: str, names, r: np.ndarray, note: str | None) -> ReportTable:
+    """The lower triangle of a matrix of the items: a row for each item, named by its number and name (the first
+    row, empty, names the first column), a column numbered for each item but the last; the data-file version in
+    full precision."""
+    p = len(names)
+    labels = [f"{_item_number(i)} {name}" for i, name in enumerate(names)]
+    rows = [[labels[i]] + [unit(r[i, j], 2) for j in range(i)] + [""] * (p - 1 - i) for i in range(p)]
+    values = [[labels[i]] + [float(r[i, j]) for j in range(i)] + [None] * (p - 1 - i) for i in range(p)]
+    columns = [("Item", "l")] + [(_item_number(k), "r") for k in range(p - 1)]
+    table = _table(key, title, columns, rows, note, values=([c for c, _ in columns], values))
+    return replace(table, matrix=True)
+
+
+def _item_number(k: int) -> str:
+    """How a matrix of the items numbers its ``k``-th item (from 0): its rows and its columns."""
+    return str(k + 1)
+
+
+def matrix_row_numbers(table: ReportTable) -> list[str]:
+    """The number of each row's item in a matrix of the items (the heading of that item's column); also of a
+    matrix saved without a row for the first item."""
+    first = len(table.columns) - len(table.rows)  # 0, or 1 when the first item has no row
+    return [_item_number(k + first) for k in range(len(table.rows))]
+
+
+def matrix_key(table: ReportTable) -> tuple[ReportTable, tuple[tuple[str, str], ...]] | None:
+    """A matrix of the items with each row named by its item's number only, and the key that names each number's
+    item (None for a table that is not such a matrix): for a view too narrow for the items' names beside the
+    numbers.  Reads also the matrices saved without a row for the first item."""
+    if not table.matrix or not table.rows:
+        return None
+    rows, key = [], []
+    for row, number in zip(table.rows, matrix_row_numbers(table)):
+        name = row[0][len(number) + 1:] if row[0].startswith(number + " ") else row[0]
+        rows.append((number, *row[1:]))
+        key.append((number, name))
+    return replace(table, rows=tuple(rows)), tuple(key)
 
 
 def group_table(result) -> ReportTable:
@@ -708,9 +745,12 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
     if any(r.sum_score_mean is None for r in rows):
         note += (" A mean is shown once the answer scale of the reversed items is known: declare it with "
                  "'reversed ITEMS on LOWEST to HIGHEST'.")
-    return _table(f"sum_scores_{group}", "Keyed sum scores",
-                  [("Factor", "l"), ("Items", "r"), ("Reversed for scoring", "l"), ("Mean", "r"), ("SD", "r"),
-                   ("Lowest item-rest r", "r")], body, note)
+    values = [[r.factor, len(r.items), ", ".join(r.reversed), r.sum_score_mean, r.sum_score_sd,
+               min(r.item_total) if r.item_total else None] for r in rows]
+    columns = [("Factor", "l"), ("Items", "r"), ("Reversed for scoring", "l"), ("Mean", "r"), ("SD", "r"),
+               ("Lowest item-rest r", "r")]
+    return _table(f"sum_scores_{group}", "Keyed sum scores", columns, body, note,
+                  values=([c for c, _ in columns], values))
 
 
 def case_table(result, group: int = 0) -> ReportTable | None:
@@ -886,8 +926,6 @@ def correlation_table(result, group: int = 0) -> ReportTable | None:
     S = g.sample_covariance
     sd = np.sqrt(np.clip(np.diag(S), 1e-300, None))
     r = S / np.outer(sd, sd)
-    rows = [[f"{i + 1} {name}"] + [unit(r[i, j], 2) for j in range(i)] + [""] * (len(names) - 1 - i)
-            for i, name in enumerate(names) if i > 0]
     where = f" in group {g.label}" if g.label is not None else ""
     pairs = g.data.pair_range
     rows_used = (f"N = {pairs[0]} to {pairs[1]} per pair" if pairs is not None and pairs[0] < pairs[1]
@@ -899,9 +937,8 @@ def correlation_table(result, group: int = 0) -> ReportTable | None:
         (result.method.full_information,
          "With full-information estimation: the saturated model's estimates from every answer."),
     ) if applies]
-    table = _table(f"correlations_{group}", f"Correlations of the items{where} ({rows_used})",
-                   [("", "l")] + [(str(k + 1), "r") for k in range(len(names) - 1)], rows, " ".join(said) or None)
-    return replace(table, matrix=True)
+    return _item_matrix(f"correlations_{group}", f"Correlations of the items{where} ({rows_used})", names, r,
+                        " ".join(said) or None)
 
 
 def matrices_left_out(result) -> str | None:
@@ -916,7 +953,7 @@ def matrices_left_out(result) -> str | None:
 
 def terminal_matrix_left_out(table: ReportTable) -> str | None:
     """Why a matrix of the items is not drawn in the terminal (None: it is): too many items to read there."""
-    items = len(table.rows) + 1
+    items = len(table.columns)  # a label column and a column for each item but the last
     if not table.matrix or items <= MAX_TERMINAL_MATRIX:
         return None
     return (f"{table.title}: {items} items, more than the {MAX_TERMINAL_MATRIX} a terminal shows readably; the HTML, "

@@ -46,8 +46,9 @@ def _table(title: str, columns: list[tuple[str, str]]) -> Table:
 def rich_table(report: ReportTable) -> Group:
     """The table with its title above and its note below, both wrapped at the terminal's width (as part of
     the table they would wrap at the table's width, a narrow column of words under a narrow table).  A table
-    wider than the terminal is shown in parts of whole columns, each with the first column again: a number is
-    never broken across lines (a residual '-.02' printed as '-.0' above '2' reads as another number)."""
+    wider than the terminal first wraps its widest text columns (long item names) and its number columns'
+    headings; what still does not fit is shown in parts of whole columns, each with the first column again: a
+    number is never broken across lines (a residual '-.02' printed as '-.0' above '2' reads as another number)."""
     parts = [Text(printable(report.title), style="bold"), _ColumnParts(report)]  # (Text is not escaped otherwise)
     if report.note:
         parts += [Text(printable(report.note, keep_newlines=True), style="dim"), Text("")]
@@ -61,27 +62,99 @@ class _ColumnParts:
         self.report = report
 
     def __rich_console__(self, console, options):
-        report = self.report
-        widths = [max([len(c) for c in [report.columns[j], *(row[j] for row in report.rows)]] or [0]) + 3
-                  for j in range(len(report.columns))]
-        parts = column_parts(widths, options.max_width, label_columns(report.align, widths, options.max_width))
-        for k, columns in enumerate(parts):
+        report, room = self.report, options.max_width
+        whole = _widths(report)
+        # a matrix of long-named items too wide for the room: numbers for names, the names in a key under it
+        keyed = T.matrix_key(report) if sum(whole) > room and whole[0] > room / 4 else None
+        if keyed is not None:
+            report = keyed[0]
+            whole = _widths(report)
+        narrow = _widths(report, wrapped_headings=True)
+        labels = label_columns(report.align, whole, room)
+        for k, columns in enumerate(column_parts(_wrapped(narrow, report.align, room), room, labels)):
             if k:
                 yield Text(f"({printable(report.title)}, continued)", style="dim")
-            yield self._table(columns)
+            # each part's text as wide as the room beside its own number columns allows, their headings wrapped
+            # between words where the room is short
+            part = dict(zip(columns, _wrapped([narrow[j] for j in columns], tuple(report.align[j] for j in columns),
+                                              room)))
+            for j in sorted(columns, key=lambda j: whole[j] - part[j]):  # headings whole while the room lasts
+                if report.align[j] == "r" and sum(part.values()) - part[j] + whole[j] <= room:
+                    part[j] = whole[j]
+            yield self._table(report, columns, part)
+        if keyed is not None:
+            yield _key(keyed[1])
 
-    def _table(self, columns: list[int]) -> Table:
-        report = self.report
+    @staticmethod
+    def _table(report: ReportTable, columns: list[int], widths: dict[int, float]) -> Table:
         table = _table("", [(report.columns[j], "left" if report.align[j] == "l" else "right") for j in columns])
         for column, j in zip(table.columns, columns):
-            # text may wrap in a narrow terminal (never cut short); numbers stay whole
+            # text wraps at its column's width, within words only when a word is longer (never cut short);
+            # numbers stay whole
             column.overflow = "fold"
-            column.no_wrap = report.align[j] == "r"
+            column.max_width = max(1, int(widths[j]) - CELL_PADDING)
+            if report.align[j] == "r":  # a number column's heading wraps between its words, its numbers never
+                column.min_width = max([len(row[j]) for row in report.rows] or [1])
         faint = set(report.faint)
+        # a part of a matrix of the items: the rows of its columns' items and those with a value in them
+        shown = set(range(len(report.rows))) if not report.matrix else {
+            k for k, (row, number) in enumerate(zip(report.rows, T.matrix_row_numbers(report)))
+            if number in {report.columns[j] for j in columns} or any(row[j] for j in columns[1:])}
         for k, row in enumerate(report.rows):
+            if k not in shown:
+                continue
             cells = [Text(printable(row[j]), style="dim") if (k, j) in faint else row[j] for j in columns]
             table.add_row(*cells, style="bold red" if k in report.flagged else None)
         return table
+
+
+CELL_PADDING = 3  # characters a column takes beside its text: padding and the gap to the next column
+
+
+def _widths(report: ReportTable, wrapped_headings: bool = False) -> list[float]:
+    """Each column's width in characters: its longest cell or heading (with ``wrapped_headings``, of a number
+    column the heading's longest word) and its padding."""
+    def head(j: int) -> int:
+        wrap = wrapped_headings and report.align[j] == "r"
+        return max(map(len, report.columns[j].split()), default=0) if wrap else len(report.columns[j])
+
+    return [max([head(j), *(len(row[j]) for row in report.rows)]) + CELL_PADDING for j in range(len(report.columns))]
+
+
+LEAST_TEXT = 16  # characters a text column keeps when it is narrowed to wrap (or its own width, when less)
+
+
+def _wrapped(widths: list[float], align: tuple[str, ...], room: int) -> list[float]:
+    """The widths with the widest text columns narrowed, their text to wrap, so that the number columns fit
+    beside them in one part: when the table is wider than ``room``, the text columns share what the number
+    columns leave (at least a third of the room), the widest cut to one width and the narrower kept whole,
+    none narrower than ``LEAST_TEXT``."""
+    if sum(widths) <= room:
+        return widths
+    text = sorted((widths[j] for j, a in enumerate(align) if a == "l"), reverse=True)
+    share = max(room - (sum(widths) - sum(text)), room / 3)
+    if not text or sum(text) <= share:
+        return widths
+    # the cap: the widest k columns cut to one width, the others whole, together ``share``
+    cap = share / len(text)
+    for k in range(1, len(text) + 1):
+        level = (share - sum(text[k:])) / k
+        if k == len(text) or level >= text[k]:
+            cap = level
+            break
+    cap = max(int(cap), LEAST_TEXT + CELL_PADDING)
+    return [min(w, cap) if a == "l" else w for w, a in zip(widths, align)]
+
+
+def _key(entries: tuple[tuple[str, str], ...]) -> Table:
+    """The key under a matrix drawn with numbers for its items: each number and its item's name, the name
+    wrapped under itself."""
+    grid = Table.grid(padding=(0, 1))
+    grid.add_column(no_wrap=True, justify="right")
+    grid.add_column(overflow="fold")
+    for short, name in entries:
+        grid.add_row(short, Text(printable(name)))
+    return grid
 
 
 def _bullets(lines) -> Table:

@@ -57,8 +57,25 @@ def csv_table(table: ReportTable) -> str:
     return buffer.getvalue()
 
 
+LATEX_LONG_TEXT = 40  # a text column with a longer cell wraps in a column of fixed width (p{...}) instead of running off
+LATEX_TEXT_SHARE = 0.5  # of the line's width, shared by the wrapping columns, less beside many number columns
+LATEX_NUMBER_SHARE = 0.05  # of the line's width, taken by a number column
+
+
+def latex_spec(table: ReportTable) -> str:
+    """The columns of a LaTeX tabular: numbers right-aligned, short text left-aligned, long text (such as items
+    named by their full question) wrapping in columns that share half the line's width, or what the number
+    columns leave of it (a fifth at least)."""
+    long = [j for j, a in enumerate(table.align) if a == "l"
+            and max([len(table.columns[j]), *(len(row[j]) for row in table.rows)]) > LATEX_LONG_TEXT]
+    room = min(LATEX_TEXT_SHARE, max(0.2, 0.95 - LATEX_NUMBER_SHARE * table.align.count("r")))
+    share = f"{room / len(long):.3g}" if long else ""
+    return "".join("r" if a == "r" else f"p{{{share}\\linewidth}}" if j in long else "l"
+                   for j, a in enumerate(table.align))
+
+
 def latex_table(table: ReportTable) -> str:
-    spec = "".join("r" if a == "r" else "l" for a in table.align)
+    spec = latex_spec(table)
     lines = [
         "\\begin{table}[ht]", "\\centering", f"\\caption{{{latex_text(table.title)}}}",
         f"\\begin{{tabular}}{{{spec}}}", "\\toprule",

@@ -33,7 +33,7 @@ def test_item_descriptives_match_scipy_and_pandas(hs_data):
         assert frame.loc[item, "Excess kurtosis"] == pytest.approx(stats.kurtosis(values, bias=True), abs=1e-12)
     correlations = T.correlation_table(result)
     r = np.corrcoef(hs_data[ITEMS].to_numpy().T)
-    assert correlations.rows[7][1:9] == tuple(T.unit(r[8, j], 2) for j in range(8))
+    assert correlations.rows[8][1:9] == tuple(T.unit(r[8, j], 2) for j in range(8))  # row 9: the first item has a row
     assert correlations.title.endswith("(N = 301)")
 
 

@@ -243,13 +243,16 @@ document.getElementById("out").textContent = JSON.stringify(out);
 
 @pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed (.ci/run installs it)")
 def test_in_a_browser_no_label_overlaps_and_the_estimate_is_on_the_safe_side(tmp_path, shapes):
+    check_in_a_browser([diagram_file(shapes[shape]) for shape in LAYOUTS], tmp_path)
+
+
+def check_in_a_browser(pictures: list[str], tmp_path) -> None:
     """The browser lays out every text with its real font; the boxes it reports (glyph extents, without the
     halo) must not overlap, must stay in the picture, and must be no wider than the test's estimate."""
     import json
 
     from tests.reporting.test_reports import _chromium
 
-    pictures = [diagram_file(shapes[shape]) for shape in LAYOUTS]
     page = tmp_path / "layouts.html"
     page.write_text("<!DOCTYPE html><html><body style='margin:0'>" + "".join(f"<div>{svg}</div>" for svg in pictures)
                     + "<pre id='out'></pre>" + MEASURE + "</body></html>", encoding="utf-8")
