@@ -85,3 +85,64 @@ def _closing(rest: str) -> int:
                 return k
     last = rest.rfind(")")
     return last if last >= 0 else len(rest)
+
+
+def read_name_list(text: str, option: str) -> list[tuple[str | None, tuple[str, ...]]]:
+    """Names separated by commas as an option takes them, written as the model language writes names: a name that
+    holds a comma in double quotes, ``"At work, I feel full."..q9`` a span whose first end is quoted.  Each piece
+    comes back as (its text when nothing in it is quoted, else None; its ends: one name, or the two ends of a span
+    'a..b', more when the text has more '..').  A piece without quotes keeps its text, so that a column named 'a..b'
+    can still be told from a span.  A quoted name keeps its spaces.  ``option`` names the option in the errors of a
+    quote that is not closed or of text stuck to a quoted name."""
+    from cfa_tool.errors import OptionError, printable
+
+    pieces: list[tuple[str | None, tuple[str, ...]]] = []
+    for piece in _outside_quotes(text, ",", option):
+        if '"' not in piece:
+            pieces.append((piece.strip(), tuple(end.strip() for end in piece.split(".."))))
+            continue
+        ends = []
+        for end in _outside_quotes(piece, "..", option):
+            bare = end.strip()
+            if bare.startswith('"') and bare.endswith('"') and bare.count('"') == 2:
+                ends.append(bare[1:-1])
+            elif '"' in bare:
+                raise OptionError(f"{option}: '{printable(bare)}' mixes quoted and unquoted text; put the whole name "
+                                  f'in double quotes ("...")')
+            else:
+                ends.append(bare)
+        pieces.append((None, tuple(ends)))
+    return pieces
+
+
+def _outside_quotes(text: str, separator: str, option: str) -> list[str]:
+    """``text`` split at each ``separator`` that is not inside double quotes."""
+    from cfa_tool.errors import OptionError, printable
+
+    parts, start, quoted, k = [], 0, False, 0
+    while k < len(text):
+        if text[k] == '"':
+            quoted = not quoted
+        elif not quoted and text.startswith(separator, k):
+            parts.append(text[start:k])
+            k += len(separator)
+            start = k
+            continue
+        k += 1
+    if quoted:
+        raise OptionError(f"{option}: a double quote is not closed in '{printable(text)}'; write a name that holds "
+                          f'commas in double quotes, "like, this"')
+    parts.append(text[start:])
+    return parts
+
+
+def comma_hint(part: str, columns) -> str:
+    """When ``part`` (a name not found) is one of the comma-separated parts of a column's name, the advice to
+    write that name in double quotes ('; a name that holds a comma is written in double quotes: "a, b"'), else ''."""
+    from cfa_tool.errors import printable
+
+    part = part.strip()
+    whole = next((c for c in columns if "," in c and part in (p.strip() for p in c.split(","))), None) if part else None
+    if whole is None:
+        return ""
+    return f"; a name that holds a comma is written in double quotes: '{printable(written_name(whole))}'"
