@@ -226,3 +226,20 @@ def test_the_power_simulation_tells_an_items_residual_variance_whose_name_holds_
     report = montecarlo_report(MonteCarloPower(200, 500, 500, 0.05, 1, rows, tuple(labels), population=population))
     assert [row[0] for row in report.tables[0].rows] == [f"residual variance of {item}", f"loading of {item} on f"]
     assert f"took defaults: the residual variance of {item}" in _plain(report_text(report, 100))
+
+
+def test_the_data_columns_of_variables_write_names_with_commas_in_double_quotes(hs_data):
+    # the tables' data (CSV) and conf_int keep the variables in one field: 'visual, x2' read back at its commas
+    # would give three variables for a loading of an item named with a comma; written as the model language writes
+    # names, the field reads back whole
+    from cfa_tool.language.names import read_name_list
+    from cfa_tool.reporting.tables import modification_table
+
+    result = cfa_tool.fit(THREE_FACTORS.replace("x2", f'"{CUBES}"'), hs_data.rename(columns={"x2": CUBES}))
+    fields = [row[1] for row in modification_table(result).values]
+    ours = [f for f in fields if CUBES in f]
+    assert ours and all(f'"{CUBES}"' in f for f in ours)
+    intervals = result.conf_int()
+    loading = intervals[(intervals.kind == "loading") & intervals.variables.str.contains("Cubes")].variables.tolist()
+    assert loading == [f'visual, "{CUBES}"']
+    assert [ends for _, ends in read_name_list(loading[0], "variables")] == [("visual",), (CUBES,)]
