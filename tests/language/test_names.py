@@ -55,6 +55,11 @@ def test_items_with_commas_are_named_in_double_quotes(renamed):
         item_names(f"x1, {CUBES}", columns, "hs.csv")
     result = cfa_tool.explore(renamed, items=f'"{CUBES}"..x9', factors=2)
     assert result.items[:2] == (CUBES, PAPER)
+    from cfa_tool.reporting.explore_report import header_lines
+
+    listed = header_lines(result)[1]  # the report lists them as --items takes them, to be copied back
+    assert listed.startswith(f'Items (8): "{CUBES}", "{PAPER}", x4, x5')
+    assert item_names(listed.partition(": ")[2], columns, "hs.csv") == result.items
 
 
 def test_ordinal_items_with_commas_are_named_in_double_quotes():
