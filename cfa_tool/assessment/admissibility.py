@@ -18,6 +18,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.errors import OptionError
+from cfa_tool.language.names import reference_text
 from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
@@ -151,11 +152,9 @@ class Problem:
             return False
         ordered = kind in ("loading", "threshold")
         for label in self.parameters:
-            if label.endswith("]") and " [" in label:  # a free parameter's label names its group
-                label, _, owner = label[:-1].rpartition(" [")
-                if group is not None and owner != group:
-                    continue
-            k, names = label.partition("(")[0], _names(label)
+            k, names, owner = split_label(label)  # a free parameter's label names its group
+            if owner is not None and group is not None and owner != group:
+                continue
             if k == kind and (names == tuple(variables) if ordered else sorted(names) == sorted(variables)):
                 return True
         return False
@@ -195,7 +194,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
     for i in np.flatnonzero(t_diag < 0).tolist():
         x, theta = observed[i], t_diag[i]
         r2 = 1.0 - theta / total[i] if total[i] > 0 else float("nan")
-        label = f"residual_variance({x})"
+        label = reference_text("residual_variance", (x,))
         se = se_of.get(label)
         chance = (f" Its standard error is {_fmt(se)}, so it is {'not ' if theta / se > -1.96 else ''}clearly below "
                   f"zero (z = {theta / se:.2f}).") if se and np.isfinite(se) and se > 0 else ""
@@ -207,7 +206,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
     for j in np.flatnonzero(mats.P.diagonal() < 0).tolist():
         f = latent[j]
         out.append(Problem(
-            ProblemKind.NEGATIVE_FACTOR_VARIANCE, (f"factor_variance({f})",), float(mats.P[j, j]),
+            ProblemKind.NEGATIVE_FACTOR_VARIANCE, (reference_text("factor_variance", (f,)),), float(mats.P[j, j]),
             f"The variance of factor {f} is negative ({_fmt(mats.P[j, j])}): impossible for a real trait.",
             "Check that its indicators measure one thing (their correlations should be clearly positive after "
             "reversing reverse-keyed items) and that the factor has enough indicators.", group))
@@ -219,7 +218,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
         pairs = np.nonzero(np.tril(beyond, -1)) if beyond.any() else ((), ())  # (tril only when some entry is)
         for i, j in zip(*(np.asarray(k).tolist() for k in pairs)):  # pairs i > j, row by row
             out.append(Problem(
-                ProblemKind.FACTOR_CORRELATION_BEYOND_ONE, (f"factor_covariance({latent[j]}, {latent[i]})",),
+                ProblemKind.FACTOR_CORRELATION_BEYOND_ONE, (reference_text("factor_covariance", (latent[j], latent[i])),),
                 float(corr[i, j]),
                 f"The correlation of factors {latent[j]} and {latent[i]} is {corr[i, j]:.3f}, beyond +/-1: impossible.",
                 "The two factors are not distinct in these data: consider one factor for both item sets, or "
@@ -227,7 +226,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
         if (not any(p.kind is ProblemKind.FACTOR_CORRELATION_BEYOND_ONE for p in out)
                 and cholesky_log_det(phi) is None and np.linalg.eigvalsh(phi)[0] < 0):  # a factorisation: positive definite
             out.append(Problem(
-                ProblemKind.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(f"factor_variance({f})" for f in latent),
+                ProblemKind.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(reference_text("factor_variance", (f,)) for f in latent),
                 float(np.linalg.eigvalsh(corr)[0]),
                 "The factor covariance matrix is not positive definite (its smallest eigenvalue is below zero): some "
                 "combination of the factors would have a negative variance.",
@@ -241,7 +240,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
             r = mats.T[i, j] / np.sqrt(t_diag[i] * t_diag[j])
             if abs(r) > 1.0:
                 out.append(Problem(
-                    ProblemKind.RESIDUAL_CORRELATION_BEYOND_ONE, (f"residual_covariance({observed[j]}, {observed[i]})",), float(r),
+                    ProblemKind.RESIDUAL_CORRELATION_BEYOND_ONE, (reference_text("residual_covariance", (observed[j], observed[i])),), float(r),
                     f"The residual correlation of {observed[j]} and {observed[i]} is {r:.3f}, beyond +/-1: impossible.",
                     "The residual covariance leaves the two items' residuals more alike than identical; remove it or "
                     "model what the two items share as a factor.", group))
@@ -249,7 +248,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
         scale = 1.0 / np.sqrt(t_diag)
         if np.linalg.eigvalsh(mats.T * np.outer(scale, scale))[0] < -1e-10:
             out.append(Problem(
-                ProblemKind.RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(f"residual_covariance({observed[j]}, {observed[i]})"
+                ProblemKind.RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(reference_text("residual_covariance", (observed[j], observed[i]))
                                                                                for i, j in off), None,
                 "The residual covariance matrix is not positive definite: the residual covariances together imply a "
                 "negative variance for some combination of the items.",
@@ -262,7 +261,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
         if i in negative:  # the same problem as the negative residual variance, already reported
             continue
         out.append(Problem(
-            ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, (f"loading({latent[j]}, {observed[i]})",), float(std[i, j]),
+            ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, (reference_text("loading", (latent[j], observed[i])),), float(std[i, j]),
             f"The standardized loading of {observed[i]} on {latent[j]} is {std[i, j]:.3f}, above 1 in size.",
             "With a cross-loading or correlated factors this can be legitimate; otherwise treat it as "
             "a Heywood case. " + HEYWOOD_ADVICE, group))

@@ -6,6 +6,7 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.estimation.optimizer import Outcome
+from cfa_tool.language.names import reference_text, written_name
 from cfa_tool.estimation.strategy import Restart, Search
 
 IDENTIFICATION_HINT = ("check that every factor is identified (three or more items with clear loadings, or two items "
@@ -51,13 +52,14 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
             parts.append(f"with every factor's variance fixed at 1 the model converged, but there the marker "
                          f"'{bad.indicator}' of factor '{bad.factor}'{where} has a loading of about zero, so it cannot "
                          f"set the factor's scale")
-            advice.append(f"let another indicator set the scale of '{bad.factor}' ('free loading({bad.factor}, "
-                          f"{bad.indicator})' makes the next one the marker) or write 'scale latent by variance'")
+            freed = reference_text("loading", (bad.factor, bad.indicator))
+            advice.append(f"let another indicator set the scale of '{bad.factor}' ('free {freed}' makes the next one "
+                          f"the marker) or write 'scale latent by variance'")
         else:
             parts.append(f"with every factor's variance fixed at 1 the model converged, but there the loadings of "
                          f"factor '{bad.factor}'{where} sum to about zero (items keyed in opposite directions), so "
                          f"effects coding cannot set its scale")
-            advice.append(f"scale '{bad.factor}' by its variance ('scale {bad.factor} by variance')")
+            advice.append(f"scale '{bad.factor}' by its variance ('scale {written_name(bad.factor)} by variance')")
     elif found.restart is Restart.NOT_CONFIRMED:
         parts.append("with every factor's variance fixed at 1 the model converged, but the search in the model's own "
                      "scaling did not confirm that minimum")

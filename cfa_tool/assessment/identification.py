@@ -7,6 +7,7 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.errors import EstimationError, ModelError
+from cfa_tool.language.names import written_name
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.numerics.linalg import ScaledFactor, scaled_factor
@@ -35,7 +36,7 @@ def check_counting_rule(spec: Spec, table: ParameterTable) -> None:
             if not scaled:
                 loc = next(f.name.location for f in spec.factors if f.name.text == factor)
                 raise ModelError(
-                    f"factor '{factor}' has no scale: fix one of its loadings or its variance (or use 'scale {factor} by ...')",
+                    f"factor '{factor}' has no scale: fix one of its loadings or its variance (or use 'scale {written_name(factor)} by ...')",
                     loc,
                     spec.source_line(loc),
                 )

@@ -20,6 +20,7 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.assessment.admissibility import Problem, ProblemKind
+from cfa_tool.language.names import reference_text
 
 #: standardized loadings below this size (in absolute value) are read as negligible (common practice)
 SMALL_LOADING = 0.20
@@ -69,7 +70,7 @@ def weak_factor_problems(estimates, latent: tuple[str, ...], observed: tuple[str
                          f" It explains {100 * share:.0f}% of its items' common variance (explained common variance; "
                          f"Reise 2012), so its variance and any reliability of it are negligible.")
             out.append(Problem(
-                ProblemKind.WEAK_METHOD_FACTOR, (f"factor_variance({factor})",), float(sizes.max()),
+                ProblemKind.WEAK_METHOD_FACTOR, (reference_text("factor_variance", (factor,)),), float(sizes.max()),
                 f"The {kind} {factor}{beside} has only small standardized loadings (at most {_size(sizes.max())} in size, "
                 f"below {_size(SMALL_LOADING)}: common practice): its items share little beyond the other factors they "
                 f"load on.{explained}",

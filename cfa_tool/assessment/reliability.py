@@ -42,6 +42,7 @@ from enum import Enum
 
 import numpy as np
 
+from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices
 
 
@@ -347,6 +348,6 @@ def keying_problems(groups) -> list:
         for r in g.reliability:
             if r.points_against:
                 explanation, advice = _turned_warning(r)
-                out.append(Problem(ProblemKind.FACTOR_POINTS_AGAINST_ITEMS, (f"factor_variance({r.factor})",), None,
+                out.append(Problem(ProblemKind.FACTOR_POINTS_AGAINST_ITEMS, (reference_text("factor_variance", (r.factor,)),), None,
                                    explanation, advice, g.label if len(groups) > 1 else None))
     return out

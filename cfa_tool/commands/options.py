@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import OptionError, printable
 from cfa_tool.method import FitTest, MissingData, Weighting
 
 
@@ -164,4 +164,15 @@ def ordinal_arg(text: str | None):
         return None
     if not text.strip(" ,"):
         raise OptionError("--ordinal names no items: give 'all' or item names separated by commas")
-    return "all" if text.strip() == "all" else [t.strip() for t in text.split(",") if t.strip()]
+    if text.strip() == "all":
+        return "all"
+    from cfa_tool.language.names import read_name_list
+
+    names = []
+    for raw, ends in read_name_list(text, "--ordinal"):
+        if raw is None and len(ends) > 1:
+            raise OptionError(f"--ordinal: give item names, not a span ('{printable('..'.join(ends))}')")
+        name = raw if raw is not None else ends[0]
+        if name.strip() if raw is not None else name:
+            names.append(name)
+    return names

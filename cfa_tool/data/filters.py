@@ -40,8 +40,8 @@ def parse_filter(text: str) -> RowFilter:
         raise OptionError(f"a row filter is text such as 'district = north', not {type(text).__name__}")
     match = _PATTERN.match(text)
     if not match:
-        raise OptionError(f"cannot read the row filter '{printable(text)}'; write COLUMN OPERATOR VALUE, e.g. "
-                          f"'district = north' or 'age >= 18'")
+        raise OptionError(f"cannot read the row filter '{printable(text)}'; " + (
+            _quoting_hint(text) or "write COLUMN OPERATOR VALUE, e.g. 'district = north' or 'age >= 18'"))
     column = match.group("quoted") or match.group("plain")
     op = "=" if match.group("op") == "==" else match.group("op")
     raw = match.group("value")
@@ -56,6 +56,20 @@ def parse_filter(text: str) -> RowFilter:
 
 
 OPERATORS = ("=", "!=", "<", "<=", ">", ">=")
+_FIRST_OPERATOR = re.compile(r"<=|>=|!=|==|=|<|>")
+
+
+def _quoting_hint(text: str) -> str:
+    """For a filter whose column name, before the operator, is several words (or holds other characters than a
+    plain word's) and is not quoted: how to write it, with the name in double quotes; '' otherwise."""
+    found = _FIRST_OPERATOR.search(text)
+    if found is None:
+        return ""
+    name, rest = text[:found.start()].strip(), text[found.start():].strip()
+    if not name or '"' in name or not (len(name.split()) > 1):
+        return ""
+    return (f"a column name with spaces is written in double quotes, e.g. "
+            f"'{printable(chr(34) + name + chr(34))} {printable(rest)}'")
 
 
 def _second_operator(text: str, start: int, op: str, position: int) -> str:

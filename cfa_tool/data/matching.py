@@ -25,12 +25,22 @@ def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: 
         if name not in available:
             loc = spec.first_mention(name)
             guess = close_names(name, columns)
-            hint = f"; did you mean '{guess[0]}'?" if guess else sheet_hint
+            hint = f"; did you mean '{guess[0]}'?{_spaces_only(name, guess[0])}" if guess else sheet_hint
             raise ModelError(
                 f"unknown variable '{name}' (not a column of {data_name}{hint})",
                 loc,
                 spec.source_line(loc),
             )
+
+
+def _spaces_only(name: str, guess: str) -> str:
+    """What to add to a suggestion that differs from the name only in its spaces, which look alike when printed."""
+    if name.split() != guess.split():
+        return ""
+    if guess != guess.strip():
+        return (" (it differs only in spaces at its ends, which the model language does not keep: rename the column "
+                "in the data)")
+    return " (the two differ only in their spaces, which look alike when printed: copy the column's name exactly)"
 
 
 #: a partner item (not named in the 'reversed' statement) with more than this share of its answers outside the

@@ -15,7 +15,6 @@ with ``cfa_tool.language.parser.parse_model`` whenever at least one factor could
 
 from __future__ import annotations
 
-import re
 import textwrap
 from dataclasses import dataclass
 
@@ -23,10 +22,10 @@ import numpy as np
 
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.exploration.choices import Placement
+from cfa_tool.language.names import writable, written_name
 
 DEFAULT_THRESHOLD = 0.30  # common practice
 MIN_ITEMS = 3  # items a drafted factor needs (see the module's docstring)
-_PLAIN_NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")
 _LINE = 96
 
 
@@ -55,12 +54,10 @@ class DraftModel:
 
 def model_name(name: str) -> str:
     """A name as the model language writes it: plain, or in double quotes."""
-    if _PLAIN_NAME.match(name):
-        return name
-    if '"' in name or "\n" in name or "\r" in name:
+    if not writable(name):
         raise DataError(f"the column name '{printable(name)}' contains a double quote or a line break, which the model "
                         f"language cannot write; rename the column")
-    return f'"{name}"'
+    return written_name(name)
 
 
 def factor_names(count: int, items: tuple[str, ...]) -> tuple[str, ...]:

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import Location, ModelError
+from cfa_tool.language.names import written_name
 from cfa_tool.language.spec import ParameterRef, Spec
 
 
@@ -137,7 +138,7 @@ def _check_scaling(spec: Spec) -> None:
             named[name.text] = name.location
             if name.text in fixed_scale:
                 ref = fixed_scale[name.text]
-                raise _fail(spec, f"'scale {name} by {setting.method}' and the fix of {ref} (line {ref.location.line}) both "
+                raise _fail(spec, f"'scale {written_name(name)} by {setting.method}' and the fix of {ref} (line {ref.location.line}) both "
                                   f"set the scale of '{name}'; keep one of them", name.location)
         for name in setting.factors:
             if name.text not in factors:

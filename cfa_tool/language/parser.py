@@ -162,12 +162,30 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
         span = _dashed_span_at(lines, line, column)
         if span is not None:
             message += f"; a range of names is written with two dots: '{span}'"
+        elif char in _PUNCTUATION:
+            message += f"; {QUOTE_HINT}"
     elif isinstance(exc, UnexpectedToken):
         message = _unexpected_token_message(exc)
+        if _name_goes_on(exc, lines, line, column):
+            message += f"; {QUOTE_HINT}, and names in a list are separated by commas"
     else:  # pragma: no cover - Lark has no other public kinds
         message = "the model text cannot be read here"
     source_line = lines[line - 1] if 1 <= line <= len(lines) else None
     return ModelError(message, Location(source, line, column), source_line)
+
+
+#: what a syntax error adds where a name seems to go on with spaces or punctuation (item texts as column names)
+QUOTE_HINT = 'a name with spaces or punctuation is written in double quotes ("The bus was on time, mostly.")'
+_PUNCTUATION = frozenset(".!?/&%;@#$*+~^|\\`")
+
+
+def _name_goes_on(exc: UnexpectedToken, lines: tuple[str, ...], line: int, column: int) -> bool:
+    """Whether the unexpected token continues a name: a word or a bracket right after a name (and spaces), where
+    a list of names wanted a comma, as in 'factor f: At work, ...' or 'Respondent ID'."""
+    if exc.token.type not in ("NAME", "SIGNED_NUMBER", "LPAR") or "COMMA" not in (exc.accepts or exc.expected):
+        return False
+    before = lines[line - 1][:column - 1] if 1 <= line <= len(lines) else ""
+    return bool(re.search(r"\w\s*$" if exc.token.type == "LPAR" else r"\w\s+$", before))
 
 
 def _dashed_span_at(lines: tuple[str, ...], line: int, column: int) -> str | None:
@@ -523,7 +541,9 @@ class _Builder:
         token = node.children[0]
         text = str(token)
         if node.data == "quoted_name":
-            text = unicodedata.normalize("NFC", text[1:-1])  # as data column names are read
+            # as data column names are read: composed accents, no spaces at the ends (headers are trimmed, so a
+            # name copied from a header with its trailing space names the same column)
+            text = unicodedata.normalize("NFC", text[1:-1]).strip()
             if not text.strip():
                 raise self.error("a quoted name cannot be empty", token)
         return Name(text, self.loc(token))

@@ -11,6 +11,7 @@ from dataclasses import dataclass, field
 from functools import cached_property
 
 from cfa_tool.errors import Location
+from cfa_tool.language.names import reference_text
 
 #: Parameter kinds a reference may name, with the number of names each takes.
 REFERENCE_KINDS: dict[str, int] = {"loading": 2, "variance": 1, "covariance": 2, "intercept": 1, "mean": 1, "threshold": 1}
@@ -84,7 +85,7 @@ class ParameterRef:
         return (self.kind, self.names)
 
     def __str__(self) -> str:
-        text = f"{self.kind}({', '.join(self.names)})"
+        text = reference_text(self.kind, self.names)
         return f"{text} in group {self.group}" if self.group is not None else text
 
 

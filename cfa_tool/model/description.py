@@ -13,6 +13,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from cfa_tool.language.checks import exogenous_factors
+from cfa_tool.language.names import read_reference
 from cfa_tool.language.spec import Spec, equality_words
 from cfa_tool.model.parameters import ParameterTable
 
@@ -90,13 +91,10 @@ class ModelDescription:
 
 def split_label(label: str) -> tuple[str, tuple[str, ...], str | None]:
     """A parameter's machine label as the parameter table writes it ('loading(F1, x1)',
-    'residual_variance(x9) [north]') split into its kind, its variables and its group (None without one)."""
-    group = None
-    if label.endswith("]") and " [" in label:
-        label, _, group = label[:-1].rpartition(" [")
-    kind, _, rest = label.partition("(")
-    names = tuple(n.strip() for n in rest.rstrip(")").split(",")) if rest else ()
-    return kind.strip(), names, group
+    'residual_variance(x9) [north]', 'variance("At work, I feel full of energy.")') read into its kind, its
+    variables and its group (None without one), by the model language's quoting rules
+    (:func:`cfa_tool.language.names.read_reference`): a name's commas and brackets stay in the name."""
+    return read_reference(label)
 
 
 def parameter_words(kind: str, names: tuple[str, ...], group: str | None = None,

@@ -35,6 +35,7 @@ import numpy as np
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.language.checks import all_refs, exogenous_factors
+from cfa_tool.language.names import reference_text, written_name
 from cfa_tool.language.spec import INVARIANCE_CLASSES, ParameterRef, Spec, equality_words
 
 MATRIX_CODES = {"L": 0, "B": 1, "P": 2, "T": 3, "N": 4, "M": 5, "K": 6}
@@ -60,7 +61,7 @@ class Parameter:
 
     @property
     def label(self) -> str:
-        return f"{self.kind}({', '.join(self.variables)})"
+        return reference_text(self.kind, self.variables)
 
 
 @dataclass(frozen=True)
@@ -395,7 +396,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     def no_effect(ref: ParameterRef, word: str) -> ModelError:
         factor = ref.names[0]
         how = (f"free it ('free {ref}'; the next indicator then sets the scale) or scale '{factor}' another way"
-               if ref.kind == "loading" else f"scale '{factor}' by a marker instead ('scale {factor} by marker')")
+               if ref.kind == "loading" else f"scale '{factor}' by a marker instead ('scale {written_name(factor)} by marker')")
         return _fail(spec, f"{ref} is fixed to set the scale of '{factor}', so {word} on it has no effect; {how}", ref)
 
     for setting in spec.starts:
@@ -569,8 +570,7 @@ def _sort_key(key: tuple, entry: dict) -> tuple:
 
 
 def _label(key: tuple, group_labels: tuple[str, ...] | None) -> str:
-    text = f"{key[1]}({', '.join(key[2])})"
-    return f"{text} [{group_labels[key[0]]}]" if group_labels else text
+    return reference_text(key[1], key[2], group_labels[key[0]] if group_labels else None)
 
 
 def _scale_error(spec: Spec, factor: str, why: str) -> ModelError:

@@ -11,6 +11,7 @@ from cfa_tool.assessment.fit_indices import FitIndices
 from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
 from cfa_tool.errors import EstimationError
+from cfa_tool.language.names import names_text
 from cfa_tool.method import FitMethod
 from cfa_tool.numerics.plain import clean, plain_array
 from cfa_tool.views import Presentable, scorer
@@ -321,7 +322,7 @@ class FitResult(Presentable):
 
         level = check.probability("the confidence level", level)
         z = float(norm_ppf(0.5 + level / 2))
-        rows = [{"kind": r.kind, "variables": ", ".join(r.variables), "group": r.group, "estimate": r.estimate,
+        rows = [{"kind": r.kind, "variables": names_text(r.variables), "group": r.group, "estimate": r.estimate,
                  "lower": r.estimate - z * r.se, "upper": r.estimate + z * r.se}
                 for r in self.estimates if r.free and np.isfinite(r.se)]
         return pd.DataFrame(rows, columns=["kind", "variables", "group", "estimate", "lower", "upper"])

@@ -6,6 +6,7 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.exploration.choices import FitStatistic
+from cfa_tool.language.names import names_text
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.numbers import num, unit
@@ -35,7 +36,7 @@ def header_lines(result) -> list[str]:
     half = " (the exploration half)" if result.split is not None else ""
     kind = "polychoric" if ex.data.kind.value == "polychoric" else "Pearson"
     return [f"Data: {result.source}; {ex.data.n_obs} rows analysed{half} of {result.rows_read} read",
-            f"Items ({len(result.items)}): {', '.join(result.items)}",
+            f"Items ({len(result.items)}): {names_text(result.items)}",  # as --items takes them: commas stay inside
             f"{ex.settings.extraction.value} extraction from the {kind} correlations; "
             f"{ex.rotated.spec.method.value} rotation" + (" (oblique: the factors may correlate)" if ex.rotated.oblique
                                                           else " (orthogonal: uncorrelated factors)")]

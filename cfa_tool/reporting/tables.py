@@ -10,6 +10,7 @@ import numpy as np
 from cfa_tool.assessment.reliability import Keying
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, WeightKind
+from cfa_tool.language.names import names_text
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
 from cfa_tool.reporting.numbers import index_text, missing, num, p_phrase, p_value, unit, word_list
@@ -587,7 +588,7 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
                       f"No parameter that could be freed has a modification index of at least "
                       f"{result.mi_threshold:g}: freeing any one of them alone would not improve the fit by that "
                       f"much.", values=(["Kind", "Variables", "Group", "Index"],
-                                        [[largest.kind, ", ".join(largest.variables), largest.group or "",
+                                        [[largest.kind, names_text(largest.variables), largest.group or "",
                                           largest.index]]))
     shown = rows[:limit] if result.mi_top is None else rows
     title = f"Largest modification indices (at least {result.mi_threshold:g}; {len(shown)} of {len(rows)} shown)"
@@ -604,7 +605,7 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
                  "refit shows the value the parameter would take.")
     note += (" Freeing parameters because of large modification indices capitalises on chance; a model changed that "
              "way needs confirmation in new data.")
-    values = [[m.kind, ", ".join(m.variables), m.group or "", m.index, m.expected_change, m.standardized_expected_change]
+    values = [[m.kind, names_text(m.variables), m.group or "", m.index, m.expected_change, m.standardized_expected_change]
               for m in shown]
     return _table("modification", title, [("Parameter that could be freed", "l"), ("Index", "r"), ("Expected change", "r"),
                                           ("Standardized", "r")], body, note,

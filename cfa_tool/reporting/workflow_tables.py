@@ -9,6 +9,7 @@ from dataclasses import replace
 
 from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
+from cfa_tool.language.names import names_text
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
@@ -636,7 +637,7 @@ def bootstrap_report(boot) -> Report:
              shown(i.estimate, i.scale),
              num(i.bootstrap_se), f"[{shown(i.percentile[0], i.scale)}, {shown(i.percentile[1], i.scale)}]",
              *([] if ordinal else [f"[{shown(i.bca[0], i.scale)}, {shown(i.bca[1], i.scale)}]"])] for i in boot.intervals]
-    values = [[i.kind, ", ".join(i.variables), i.scale, i.estimate, i.bootstrap_se, *i.percentile,
+    values = [[i.kind, names_text(i.variables), i.scale, i.estimate, i.bootstrap_se, *i.percentile,
                *([] if ordinal else i.bca)] for i in boot.intervals]
     kinds = "percentile intervals" if ordinal else "percentile and bias-corrected and accelerated (BCa; Efron 1987) intervals"
     table = _table("bootstrap_intervals", "Bootstrap intervals (95%)",
@@ -916,7 +917,7 @@ def population_parts(population) -> tuple[str, ReportTable]:
                 "1) and converted to the model's scaling; values from 'start' statements replace them.")
     rows = [[parameter_words(v["kind"], tuple(v["variables"]), article=False), num(v["value"]), num(v["standardized"]),
              v["from"]] for v in entries]
-    values = [[v["kind"], ", ".join(v["variables"]), v["value"], v["standardized"], v["from"]] for v in entries]
+    values = [[v["kind"], names_text(v["variables"]), v["value"], v["standardized"], v["from"]] for v in entries]
     words = ("From: earlier fit = its estimate" if population.fitted_from is not None else
              "From: default = the standardized default in the model's scaling; start = a 'start' statement")
     if population.fitted_from is not None and population.equal_categories:

@@ -218,34 +218,42 @@ def _fit_dict(step: FitStep) -> dict:
 
 def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str], source: str) -> tuple[str, ...] | None:
     """Items from a list of names, or from text: names separated by commas, where 'a..b' is every column of the
-    data from column a to column b in the file's order."""
+    data from column a to column b in the file's order; a name that holds a comma is written in double quotes, as
+    the model language writes it (:func:`cfa_tool.language.names.read_name_list`)."""
     if text is None:
         return None
     if isinstance(text, (list, tuple)):
-        pieces = list(text)
-        if not all(isinstance(p, str) for p in pieces):
+        if not all(isinstance(p, str) for p in text):
             raise OptionError("items must be column names (text)")
+        pieces = [(p, (p,) if p in columns else tuple(p.split(".."))) for p in text]
     elif isinstance(text, str):
-        pieces = [p.strip() for p in text.split(",")]
-        if not all(pieces):
-            raise OptionError(f"items: give column names separated by commas (a..b for a span of columns), not "
-                              f"'{printable(text)}'")
+        from cfa_tool.language.names import read_name_list
+
+        pieces = read_name_list(text, "items")
+        if not all(all(ends) for _, ends in pieces):
+            raise OptionError(f"items: give column names separated by commas (a..b for a span of columns; a name "
+                              f'that holds a comma in double quotes, "like, this"), not \'{printable(text)}\'')
     else:
         raise OptionError(f"items must be column names, not {type(text).__name__}")
     out: list[str] = []
-    for piece in pieces:
-        ends = piece.split("..") if ".." in piece and piece not in columns else [piece]
+    for raw, ends in pieces:
+        piece = raw if raw is not None else "..".join(ends)
+        if raw is not None and raw in columns:
+            ends = (raw,)
+        ends = tuple(_as_column(end, columns) for end in ends)
         for end in ends:
             if end not in columns:
+                from cfa_tool.language.names import comma_hint
                 from cfa_tool.suggest import close_names, dotted_span
 
                 span = dotted_span(end)
                 if span is not None and all(e in columns for e in span.split("..")):
                     raise OptionError(f"items: {source} has no column '{printable(end)}'; a span of columns is "
                                       f"written with two dots: '{printable(span)}'")
+                hint = comma_hint(end, columns)
                 guess = close_names(end, columns)
                 raise OptionError(f"items: {source} has no column '{printable(end)}'"
-                                  + (f"; did you mean '{printable(guess[0])}'?" if guess else ""))
+                                  + (hint or (f"; did you mean '{printable(guess[0])}'?" if guess else "")))
         if len(ends) == 2:
             lo, hi = columns.index(ends[0]), columns.index(ends[1])
             if lo > hi:
@@ -261,6 +269,11 @@ def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str
                 raise OptionError(f"items: '{printable(name)}' is named twice")
             out.append(name)
     return tuple(out)
+
+
+def _as_column(name: str, columns: list[str]) -> str:
+    """A name given for a column, matched as the file's header is read: spaces around it do not count."""
+    return name.strip() if name not in columns and name.strip() in columns else name
 
 
 def _numeric_columns(frame: pd.DataFrame) -> tuple[str, ...]:

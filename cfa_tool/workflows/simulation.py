@@ -29,6 +29,7 @@ from cfa_tool.numerics import distributions as dist
 from cfa_tool import options as check
 from cfa_tool.errors import ModelError, OptionError, printable
 from cfa_tool.language.spec import Spec
+from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.views import Presentable
@@ -296,7 +297,7 @@ def _as_written(par) -> str:
     """A parameter as a model file's 'fix' statement names it: variance(a2), covariance(f1, f2), loading(f1, a3)."""
     word = {"factor_variance": "variance", "residual_variance": "variance", "factor_covariance": "covariance",
             "residual_covariance": "covariance"}.get(par.kind, par.kind)
-    return f"{word}({', '.join(par.variables)})"
+    return reference_text(word, par.variables)
 
 
 def _correlation(value: float) -> str:

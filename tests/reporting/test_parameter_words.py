@@ -170,3 +170,76 @@ def test_modification_and_bootstrap_tables_name_parameters_in_words(hs_data):
     report = bootstrap_report(BootstrapResult(fitted, 500, 500, 1, intervals, None, None))
     assert [row[0] for row in report.tables[0].rows] == ["loading of x2 on visual", "residual covariance of x7 and x8"]
     assert not MACHINE.search(_plain(report_text(report, 100)))
+
+
+#: item names as survey platforms write them: the question's text, with commas, brackets and full stops
+CUBES = "Cubes, paper form (timed)."
+CUBES_BOUND = THREE_FACTORS.replace("x2", f'"{CUBES}"') + f'bound loading(visual, "{CUBES}") <= 0.3\n'
+
+
+def test_a_label_is_read_back_by_the_model_languages_quoting_rules():
+    # the grammar's STRING (grammar/model.lark) holds commas and brackets; a label writes such a name quoted, so
+    # that its kind, names and group come back as they were (a new-user trial: 'the residual variance of At work
+    # and I feel full of energy.' from splitting 'residual_variance(At work, I feel full of energy.)' at the comma)
+    from cfa_tool.language.names import reference_text
+
+    for kind, names, group in [("residual_variance", ("At work, I feel full of energy.",), None),
+                               ("loading", ("energy", "By mid-shift I feel drained (tired, flat)."), "north"),
+                               ("covariance", ("x1", "x2"), None), ("loading", ("visual", "x2"), "a [b]")]:
+        label = reference_text(kind, names, group)
+        assert split_label(label) == (kind, names, group), label
+    assert reference_text("variance", ("At work, I feel full.",)) == 'variance("At work, I feel full.")'
+    assert reference_text("loading", ("visual", "x2"), "south") == "loading(visual, x2) [south]"  # plain names as before
+    assert label_words('residual_variance("At work, I feel full of energy.")') == \
+        "the residual variance of At work, I feel full of energy."
+
+
+def test_a_bound_on_an_item_whose_name_holds_commas_is_named_whole(hs_data):
+    # the bound case above (Holzinger & Swineford 1939, loading of x2 on visual about .55, so a bound at .3 holds it)
+    # with x2 renamed as a survey platform would name it
+    result = cfa_tool.fit(CUBES_BOUND, hs_data.rename(columns={"x2": CUBES}))
+    (problem,) = [p for p in result.problems]
+    assert problem.parameters == (f'loading(visual, "{CUBES}")',)
+    assert problem.parameter_words() == (f"the loading of {CUBES} on visual",)
+    assert problem.explanation.startswith(f"The loading of {CUBES} on visual is held at its upper bound (0.3)")
+    assert problem.touches("loading", ("visual", CUBES))
+    out = result.to_dict()["problems"][0]
+    assert out["parameters_in_words"] == [f"the loading of {CUBES} on visual"]
+    assert f"the loading of {CUBES} on visual held at a bound" in _plain(report_text(fit_report(result), 100))
+
+
+def test_the_power_simulation_tells_an_items_residual_variance_whose_name_holds_commas():
+    # the same rule as above: an item's variance is its residual's, a factor's its own; a comma in the item's name
+    # made the item unknown ('variance of factor At work and I feel ...')
+    from cfa_tool.language.parser import parse_model
+    from cfa_tool.language.names import reference_text
+    from cfa_tool.reporting.workflow_tables import montecarlo_report
+    from cfa_tool.workflows.montecarlo import MonteCarloPower, ParameterPower
+    from cfa_tool.workflows.simulation import population_from_spec
+
+    item = "At work, I feel full of energy."
+    population = population_from_spec(parse_model(f'factor f: "{item}", y3, y7\nfactor g: y1, y4, y5\n'))
+    labels = [label for label in population.table.free_labels if split_label(label)[1][-1] == item]
+    assert labels == [reference_text("variance", (item,))]  # the marker's loading is fixed: its variance only
+    rows = tuple(ParameterPower(label, 0.5, 0.5, 0.0, 0.1, 0.1, 0.95, 0.9)
+                 for label in (*labels, reference_text("loading", ("f", item))))
+    report = montecarlo_report(MonteCarloPower(200, 500, 500, 0.05, 1, rows, tuple(labels), population=population))
+    assert [row[0] for row in report.tables[0].rows] == [f"residual variance of {item}", f"loading of {item} on f"]
+    assert f"took defaults: the residual variance of {item}" in _plain(report_text(report, 100))
+
+
+def test_the_data_columns_of_variables_write_names_with_commas_in_double_quotes(hs_data):
+    # the tables' data (CSV) and conf_int keep the variables in one field: 'visual, x2' read back at its commas
+    # would give three variables for a loading of an item named with a comma; written as the model language writes
+    # names, the field reads back whole
+    from cfa_tool.language.names import read_name_list
+    from cfa_tool.reporting.tables import modification_table
+
+    result = cfa_tool.fit(THREE_FACTORS.replace("x2", f'"{CUBES}"'), hs_data.rename(columns={"x2": CUBES}))
+    fields = [row[1] for row in modification_table(result).values]
+    ours = [f for f in fields if CUBES in f]
+    assert ours and all(f'"{CUBES}"' in f for f in ours)
+    intervals = result.conf_int()
+    loading = intervals[(intervals.kind == "loading") & intervals.variables.str.contains("Cubes")].variables.tolist()
+    assert loading == [f'visual, "{CUBES}"']
+    assert [ends for _, ends in read_name_list(loading[0], "variables")] == [("visual",), (CUBES,)]

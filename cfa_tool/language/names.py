@@ -1,0 +1,148 @@
+"""Names and parameter references as the model language writes them, and such references read back.
+
+A name that is not a plain word (letters, digits and underscores, not starting with a digit) is written in
+double quotes, as a model file writes it: ``"At work, I feel full of energy."``.  A parameter reference is
+``kind(name, name)`` with each name so written, and a parameter of one group adds `` [group]``.  The parameter
+table's labels, the problems' parameter keys, messages that quote a reference and the drafted model all write
+names this way (:func:`written_name`, :func:`reference_text`), so that a label can be read back into its kind,
+its names and its group exactly (:func:`read_reference`), whatever commas, brackets or spaces the names hold.
+"""
+
+from __future__ import annotations
+
+import re
+
+_PLAIN = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")  # the grammar's NAME (grammar/model.lark)
+
+
+def plain(name: str) -> bool:
+    """Whether ``name`` can be written without quotes."""
+    return bool(_PLAIN.match(name))
+
+
+def writable(name: str) -> bool:
+    """Whether the model language can write ``name`` at all (a quoted name holds no double quote or line break)."""
+    return not any(c in name for c in '"\n\r')
+
+
+def written_name(name: str) -> str:
+    """``name`` as the model language writes it: plain, or in double quotes.  A name the language cannot write
+    (see :func:`writable`) is left as it is."""
+    return name if plain(name) or not writable(name) else f'"{name}"'
+
+
+def names_text(names) -> str:
+    """Several names as a list of the model language writes them: ``a, "b c"``."""
+    return ", ".join(written_name(n) for n in names)
+
+
+def reference_text(kind: str, names, group: str | None = None) -> str:
+    """A parameter reference as labels and messages write it: ``loading(energy, "At work, I feel full.")``,
+    ``residual_variance(x9) [north]``."""
+    text = f"{kind}({names_text(names)})"
+    return f"{text} [{group}]" if group is not None else text
+
+
+_NAME = re.compile(r'\s*(?:"([^"\n]*)"|([^,]*))\s*(,|\Z)')
+
+
+def read_reference(label: str) -> tuple[str, tuple[str, ...], str | None]:
+    """A reference written by :func:`reference_text` read back into its kind, its names and its group (None
+    without one): quoted names keep their commas and brackets.  A label without quotes whose names hold commas
+    (as saved results of earlier versions write them) cannot be told apart and is split at each comma."""
+    group = None
+    kind, paren, rest = label.partition("(")
+    if not paren:
+        return label.strip(), (), None
+    close = _closing(rest)
+    inside, tail = rest[:close], rest[close + 1:]
+    if tail.endswith("]") and tail.lstrip().startswith("["):
+        group = tail.strip()[1:-1]
+    names: list[str] = []
+    position = 0 if inside.strip() else len(inside) + 1
+    while position <= len(inside):
+        match = _NAME.match(inside, position)
+        if match is None:  # a quote that does not close: the rest as one name
+            names.append(inside[position:].strip())
+            break
+        names.append(match.group(1) if match.group(1) is not None else match.group(2).strip())
+        if not match.group(3):
+            break
+        position = match.end()
+    return kind.strip(), tuple(names), group
+
+
+def _closing(rest: str) -> int:
+    """The position of the bracket that closes a reference's list of names in ``rest`` (the text after its
+    opening bracket): the first ')' outside quotes after which only a group suffix follows, else the last one."""
+    quoted = False
+    for k, c in enumerate(rest):
+        if c == '"':
+            quoted = not quoted
+        elif c == ")" and not quoted:
+            tail = rest[k + 1:].strip()
+            if not tail or (tail.startswith("[") and tail.endswith("]")):
+                return k
+    last = rest.rfind(")")
+    return last if last >= 0 else len(rest)
+
+
+def read_name_list(text: str, option: str) -> list[tuple[str | None, tuple[str, ...]]]:
+    """Names separated by commas as an option takes them, written as the model language writes names: a name that
+    holds a comma in double quotes, ``"At work, I feel full."..q9`` a span whose first end is quoted.  Each piece
+    comes back as (its text when nothing in it is quoted, else None; its ends: one name, or the two ends of a span
+    'a..b', more when the text has more '..').  A piece without quotes keeps its text, so that a column named 'a..b'
+    can still be told from a span.  A quoted name keeps its spaces.  ``option`` names the option in the errors of a
+    quote that is not closed or of text stuck to a quoted name."""
+    from cfa_tool.errors import OptionError, printable
+
+    pieces: list[tuple[str | None, tuple[str, ...]]] = []
+    for piece in _outside_quotes(text, ",", option):
+        if '"' not in piece:
+            pieces.append((piece.strip(), tuple(end.strip() for end in piece.split(".."))))
+            continue
+        ends = []
+        for end in _outside_quotes(piece, "..", option):
+            bare = end.strip()
+            if bare.startswith('"') and bare.endswith('"') and bare.count('"') == 2:
+                ends.append(bare[1:-1])
+            elif '"' in bare:
+                raise OptionError(f"{option}: '{printable(bare)}' mixes quoted and unquoted text; put the whole name "
+                                  f'in double quotes ("...")')
+            else:
+                ends.append(bare)
+        pieces.append((None, tuple(ends)))
+    return pieces
+
+
+def _outside_quotes(text: str, separator: str, option: str) -> list[str]:
+    """``text`` split at each ``separator`` that is not inside double quotes."""
+    from cfa_tool.errors import OptionError, printable
+
+    parts, start, quoted, k = [], 0, False, 0
+    while k < len(text):
+        if text[k] == '"':
+            quoted = not quoted
+        elif not quoted and text.startswith(separator, k):
+            parts.append(text[start:k])
+            k += len(separator)
+            start = k
+            continue
+        k += 1
+    if quoted:
+        raise OptionError(f"{option}: a double quote is not closed in '{printable(text)}'; write a name that holds "
+                          f'commas in double quotes, "like, this"')
+    parts.append(text[start:])
+    return parts
+
+
+def comma_hint(part: str, columns) -> str:
+    """When ``part`` (a name not found) is one of the comma-separated parts of a column's name, the advice to
+    write that name in double quotes ('; a name that holds a comma is written in double quotes: "a, b"'), else ''."""
+    from cfa_tool.errors import printable
+
+    part = part.strip()
+    whole = next((c for c in columns if "," in c and part in (p.strip() for p in c.split(","))), None) if part else None
+    if whole is None:
+        return ""
+    return f"; a name that holds a comma is written in double quotes: '{printable(written_name(whole))}'"
