@@ -30,6 +30,7 @@ import pandas as pd
 
 from cfa_tool.data.moments import item_values
 from cfa_tool.errors import printable
+from cfa_tool.input_files import base_name
 
 MIN_OTHERS = 10  # answers a judgement needs besides the value judged
 FAR_RANGES = 2.0  # a row with values further beyond the others than this many times their range in half its columns
@@ -63,7 +64,7 @@ class OddValues:
 
     def caution(self, source: str) -> str:
         """The one line a report shows first: the columns, the value, how many rows and which."""
-        name = source.replace("\\", "/").rsplit("/", 1)[-1]
+        name = base_name(source)
         low, high = self.others
         if self.kind is OddKind.MISSING_CODE:
             value = _number(self.values[0])
