@@ -28,6 +28,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.descriptives import answer_extremes
 from cfa_tool.data.moments import item_values
 from cfa_tool.errors import printable
 from cfa_tool.input_files import base_name
@@ -176,13 +177,11 @@ def _may_stand_out(X: np.ndarray) -> np.ndarray:
     it), and at the bottom likewise; a column failing both has nothing to peel.  Comparisons with NaN keep a
     column (``_peeled`` judges it)."""
     finite = np.isfinite(X)  # the extremes over masks (no masked copy of the data: on a thousand rows its
-    if finite.all():  # allocation costs more than the comparisons); no gaps (the common case): fewer masks
-        top, bottom = X.max(axis=0, initial=-np.inf), X.min(axis=0, initial=np.inf)
+    bottom, top = answer_extremes(X, finite)  # allocation costs more than the comparisons)
+    if finite.all():  # no gaps (the common case): fewer masks
         next_top = X.max(axis=0, initial=-np.inf, where=X < top)
         next_bottom = X.min(axis=0, initial=np.inf, where=X > bottom)
     else:
-        top = X.max(axis=0, initial=-np.inf, where=finite)
-        bottom = X.min(axis=0, initial=np.inf, where=finite)
         next_top = X.max(axis=0, initial=-np.inf, where=finite & (X < top))
         next_bottom = X.min(axis=0, initial=np.inf, where=finite & (X > bottom))
     quiet = (top - next_top < next_top - bottom) & (next_bottom - bottom < top - next_bottom)
