@@ -102,11 +102,11 @@ def quality_table(result, k: int) -> ReportTable:
 
 
 def _precision_of(result, q) -> tuple[ScoreMethod, tuple]:
-    """(the method, its scoring.quality.Precision per factor) of one group's scores: the first method written
-    (continuous items), the posterior means (ordinal items, whose quality holds them)."""
-    if not hasattr(q, "methods"):
-        return ScoreMethod.EXPECTED_A_POSTERIORI, q.precision
-    return result.methods[0], (q.precision(result.methods[0]) if q.factor_sd else ())
+    """(the method, its scoring.quality.Precision per factor) of one group's scores: the first method written (the
+    posterior means for ordinal items, their one method)."""
+    from cfa_tool.scoring.quality import precision_of
+
+    return result.methods[0], precision_of(q, result.methods[0])
 
 
 def precision_table(result, k: int) -> ReportTable | None:

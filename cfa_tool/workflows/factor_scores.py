@@ -133,7 +133,9 @@ class OrdinalQuality:
     sums: tuple = ()  # SumScore per factor: the keyed sum of the answers' codes (Green & Yang 2009 reliability)
     # how precise one person's score is, from the posterior SDs of the rows that answered every item of the factor
     # (their median as the standard error), and that SE's median in the lowest and the highest third of the scores
-    precision: tuple = ()  # scoring.quality.Precision per factor with such rows
+    # scoring.quality.Precision (method: the posterior mean) per factor with such rows: the field continuous items'
+    # ScoreQuality holds, read the one way by scoring.quality.precision_of
+    precision: tuple[Precision, ...] = ()
     precision_by_level: tuple = ()  # (factor, SE in the lowest third of scores, SE in the highest third)
 
     @property
