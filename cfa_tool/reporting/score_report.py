@@ -68,11 +68,10 @@ def caution_lines(result) -> list[str]:
 def _one_item_sentence(fit) -> str:
     """Factors measured by one item, whose error variance the model must fix: their scores' determinacy,
     reliability and precision follow from that fixed value, not from the data (:mod:`cfa_tool.reporting.one_item`).
-    ``fit``: the fit result, or a saved fit (its JSON rows)."""
+    ``fit``: the fit result, or a saved fit (its estimate rows as read back)."""
     from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
 
-    rows = fit.estimates if hasattr(fit, "estimates") else fit.payload.get("estimates", ())
-    return one_item_sentence(one_item_factors(rows, fit.observed), "determinacy, reliability and precision")
+    return one_item_sentence(one_item_factors(fit.estimates, fit.observed), "determinacy, reliability and precision")
 
 
 def quality_table(result, k: int) -> ReportTable:

@@ -544,6 +544,7 @@ class SavedFit:
     problems: tuple
     warnings: tuple[str, ...]
     group_column: str | None
+    estimates: tuple  # model.saved_estimates.SavedRow per estimate row, read once (kind, variables, group, estimate)
     payload: dict = field(repr=False)
     source: str = "the fit result"  # the file, as messages name it
 
@@ -561,21 +562,23 @@ def read_saved_fit(path) -> SavedFit:
     an estimate that is not a number) is named in an error."""
     from cfa_tool.assessment.admissibility import saved_fit_problems
     from cfa_tool.input_files import input_json
+    from cfa_tool.model.saved_estimates import saved_rows
     from cfa_tool.pipeline.results import DataSummary
 
     source = f"'{printable(str(path))}'"
     payload = input_json(Path(path), "fit result", OptionError)
     if not isinstance(payload, dict) or payload.get("tool") != "cfa-tool" or "estimates" not in payload:
         raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)")
+    rows = saved_rows(payload["estimates"], source)  # the estimate rows, read here once
     # the estimates themselves judged as a fresh fit is, whatever the file's flag and problems say
-    problems = saved_fit_problems(payload, source)
+    problems = saved_fit_problems(payload, rows, source)
     try:
         d = payload["data"]
         counts = d.get("category_counts") or {}
         categories = tuple(tuple((float(c["value"]), int(c["rows"])) for c in counts.get(x, ())) for x in d["variables"])
         means = tuple(float(v) for v in d["means"]) if d["means"] is not None else (0.0,) * len(d["variables"])
         not_given = tuple(NotGiven(v) for v in d.get("not_given", ()))
-        if "not_given" not in d and not any(e.get("kind") == "intercept" for e in payload["estimates"]) \
+        if "not_given" not in d and not any(row.kind == "intercept" for row in rows) \
                 and not any(means) and not counts:
             not_given = (NotGiven.MEANS,)  # written before fits said so: every item mean 0 is no mean at all
         summary = DataSummary(str(d["source"]), int(d["rows_read"] if d["rows_read"] is not None else d["n_obs"]),
@@ -589,18 +592,18 @@ def read_saved_fit(path) -> SavedFit:
         raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)") from None
     return SavedFit(str(model.get("name")), str(model.get("source")), str(payload.get("estimator")), int(payload["n_obs"]),
                     summary, tuple(summary.variables), problems, tuple(payload.get("warnings", ())),
-                    payload.get("group_column"), payload, source)
+                    payload.get("group_column"), rows, payload, source)
 
 
 def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
     """Each group's scoring model from ``spec`` (the model file the fit was made with) and the estimates of its
     JSON result, read onto the model's parameter table by the one reader of saved estimates
     (:func:`~cfa_tool.model.saved_estimates.values_on_model`: an error naming what does not match)."""
-    from cfa_tool.model.saved_estimates import saved_rows, values_on_model
+    from cfa_tool.model.saved_estimates import values_on_model
     from cfa_tool.pipeline.continuous import model_structure
     from cfa_tool.scoring.model import scoring_model
 
-    rows = saved_rows(saved.payload["estimates"], saved.source)
+    rows = saved.estimates
     multi = saved.group_column is not None
     labels = tuple(g["name"] for g in saved.payload.get("groups", ())) if multi else None
     _same_item_names(spec, saved.data.variables)
