@@ -401,11 +401,15 @@ def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bo
     """Scores of the rows of ``data`` with the parameters of an earlier fit (``result``): a scale calibrated in one
     sample scores another.  With groups, ``data`` needs the fit's group column, and each row is scored with its
     group's parameters (a row of a group the fit does not have gets no scores).  The quality figures are those of
-    the fitted model; the report's fit is the earlier one."""
+    the fitted model; the report's fit is the earlier one.  A fit whose solution is not admissible is refused as a
+    saved one is (:class:`~cfa_tool.errors.OptionError`, exit 2 on the command line: the fit is an input the run
+    cannot use; it estimates no model)."""
+    from cfa_tool.assessment.admissibility import refuse_inadmissible_saved_fit
+
     if not isinstance(result, FitResult):
         raise OptionError(f"scores need a fit result (cfa_tool.fit), not {type(result).__name__}")
-    if not result.admissible:
-        raise EstimationError("the fitted solution is not admissible, so no factor scores are computed with it")
+    refuse_inadmissible_saved_fit({"admissible": result.admissible, "converged": result.converged}, result.problems,
+                                  "the fit result given", "no factor scores are computed with it")
     chosen = _saved_methods(methods, result.method.ordinal, standard_errors)
     models, labels = models_of_fit(result)
     return _score_other_data(result, _spec_of(result), models, labels, data, chosen, standard_errors, id_column, sheet,

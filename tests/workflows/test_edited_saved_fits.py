@@ -238,3 +238,26 @@ def test_a_saved_fits_rows_are_read_once_by_each_command(tmp_path, saved, monkey
     calls.clear()
     simulated = simulate(model, n=40, seed=1, population=fitted)
     assert len(calls) == len(saved["estimates"]) and len(simulated.frame) == 40
+
+
+def test_an_inadmissible_fit_is_refused_alike_in_python_and_on_the_command_line(tmp_path, hs_data, capsys):
+    """FitResult.scores (workflows.factor_scores.score_with_fit) refuses a fit whose solution is not admissible with
+    the error the command line gives a saved one: OptionError, exit 2 (the fit is an input the run cannot use; it
+    raised EstimationError, the exit-3 type, before).  The Heywood case of Holzinger & Swineford (1939) with two
+    correlated residuals added, as above."""
+    import cfa_tool
+    from cfa_tool.errors import EstimationError, OptionError
+
+    model_text = THREE_FACTORS + "covary x7, x8\ncovary x8, x9\n"
+    heywood = cfa_tool.fit(model_text, hs_data)
+    assert not heywood.admissible
+    with pytest.raises(OptionError) as in_python:
+        heywood.scores(hs_data)
+    assert not isinstance(in_python.value, EstimationError)
+    model, fitted = tmp_path / "heywood.cfa", tmp_path / "heywood.json"
+    model.write_text(model_text)
+    fitted.write_text(json.dumps(heywood.to_dict() | {"tool": "cfa-tool"}))
+    code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", fitted, "--output", tmp_path / "s.csv"],
+                        capsys)
+    said = str(in_python.value).split(": ", 1)[1]  # the same words after the name of the fit
+    assert code == 2 and said.startswith("the fitted solution is not admissible (it has ") and said in err, err
