@@ -64,7 +64,7 @@ class _ColumnParts:
         report = self.report
         widths = [max([len(c) for c in [report.columns[j], *(row[j] for row in report.rows)]] or [0]) + 3
                   for j in range(len(report.columns))]
-        parts = column_parts(widths, options.max_width, label_columns(report.align, widths, options.max_width))
+        parts = column_parts(widths, options.max_width, label_columns(report.align, widths, options.max_width, report.rows))
         for k, columns in enumerate(parts):
             if k:
                 yield Text(f"({printable(report.title)}, continued)", style="dim")
