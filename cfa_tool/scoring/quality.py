@@ -100,6 +100,13 @@ class Precision:
     band: float  # half-width of the 95% band, Z95 * SE
     smallest_difference: float  # Z95 * sqrt(2) * SE
 
+    @classmethod
+    def of(cls, factor: str, method: ScoreMethod, factor_sd: float, reliability: float,
+           standard_error: float) -> Precision:
+        """The band and the smallest real difference from the standard error (module docstring: Gulliksen 1950)."""
+        se = float(standard_error)
+        return cls(factor, method, float(factor_sd), float(reliability), se, Z95 * se, Z95 * np.sqrt(2.0) * se)
+
     @property
     def band_in_sd(self) -> float:
         return self.band / self.factor_sd
@@ -150,7 +157,7 @@ def precision_of(quality, method: ScoreMethod) -> tuple[Precision, ...]:
 def method_precision(quality: MethodQuality, factor_sd) -> tuple[Precision, ...]:
     """Each scored factor's :class:`Precision` for one linear method from its root mean squared error about the
     factor (module docstring: Gulliksen 1950); ``factor_sd``: sqrt(Phi_kk) per factor."""
-    return tuple(Precision(f, quality.method, float(sd), rel, se, Z95 * se, Z95 * np.sqrt(2.0) * se)
+    return tuple(Precision.of(f, quality.method, sd, rel, se)
                  for f, sd, rel, se in zip(quality.factors, factor_sd, quality.reliability,
                                            quality.root_mean_squared_error)
                  if np.isfinite(se) and np.isfinite(rel))

@@ -24,7 +24,7 @@ from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
-from cfa_tool.scoring.quality import Z95, Precision, ScoreQuality, ordinal_sum_quality
+from cfa_tool.scoring.quality import Precision, ScoreQuality, ordinal_sum_quality
 
 
 class RowLeftOut(Enum):
@@ -839,8 +839,7 @@ def _ordinal_precision(base, v: np.ndarray, e: np.ndarray, answered: np.ndarray,
         s, sd = v[rows, f], e[rows, f]
         se = float(np.median(sd))
         low, high = np.quantile(s, [1 / 3, 2 / 3])
-        precision.append(Precision(name, ScoreMethod.EXPECTED_A_POSTERIORI, float(factor_sd[f]), float(reliability[f]),
-                                   se, Z95 * se, Z95 * np.sqrt(2.0) * se))
+        precision.append(Precision.of(name, ScoreMethod.EXPECTED_A_POSTERIORI, factor_sd[f], reliability[f], se))
         by_level.append((name, float(np.median(sd[s <= low])), float(np.median(sd[s >= high]))))
     return tuple(precision), tuple(by_level)
 
