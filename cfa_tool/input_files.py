@@ -22,6 +22,13 @@ def _short(path: str | Path) -> str:
     return text if len(text) <= 200 else text[:120] + "..." + text[-60:]
 
 
+def base_name(source: str | Path) -> str:
+    """The file's own name without its folders, as messages name a data source: the part after the last '/' or
+    '\\' (a Windows path read on any system: 'C:\\survey\\riders.csv' -> 'riders.csv'); a name without folders, or a
+    source that is no file (a data frame's '<data frame>'), as it is."""
+    return str(source).replace("\\", "/").rsplit("/", 1)[-1]
+
+
 def check_input_path(path: str | Path, what: str, error: type[UserInputError],
                      regular_only: bool = False) -> os.stat_result:
     """The file's status, or ``error`` with a plain sentence: it does not exist, is a folder,

@@ -22,7 +22,7 @@ from cfa_tool.language.names import reference_text
 from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
-from cfa_tool.model.saved_estimates import AGAIN, saved_rows
+from cfa_tool.model.saved_estimates import AGAIN, SavedRow
 from cfa_tool.numerics.linalg import cholesky_log_det
 
 
@@ -365,16 +365,16 @@ def _labels_of(table: ParameterTable) -> _Labels:
 _MATRIX_KINDS = ("loading", "factor_variance", "factor_covariance", "residual_variance", "residual_covariance")
 
 
-def estimate_row_problems(rows: list, source: str = "the saved result") -> tuple[Problem, ...]:
+def estimate_row_problems(rows: tuple[SavedRow, ...]) -> tuple[Problem, ...]:
     """The inadmissible problems of a saved result's estimates themselves (the rows of a ``--json`` file's
-    'estimates': kind, variables, group, estimate), whatever its 'admissible' flag says: the rows are read by
-    the one reader of saved estimates (:func:`~cfa_tool.model.saved_estimates.saved_rows`, an error naming a row
-    it cannot read, as an estimate that is not a number), each group's matrices are rebuilt from them and judged
+    'estimates' as the one reader of saved estimates gives them, :func:`~cfa_tool.model.saved_estimates.saved_rows`,
+    which names a row it cannot read), whatever its 'admissible' flag says: each group's matrices are rebuilt from
+    them and judged
     by :func:`matrix_problems`, the rule a fresh fit is judged by (negative variances, correlations beyond +/-1,
     covariance matrices not positive definite).  Rows that are not of a loading, variance or covariance are left
     to the reader of the model's values."""
     groups: dict = {}
-    for row in saved_rows(rows, source):
+    for row in rows:
         if row.kind in _MATRIX_KINDS and len(row.variables) in (1, 2):
             groups.setdefault(row.group, []).append((row.kind, row.variables[0], row.variables[-1], row.estimate))
     out: list[Problem] = []
@@ -406,10 +406,11 @@ def estimate_row_problems(rows: list, source: str = "the saved result") -> tuple
     return tuple(out)
 
 
-def saved_fit_problems(payload: dict, source: str) -> tuple[Problem, ...]:
-    """The problems of a saved fit (the dict of its ``fit --json`` result): first those of its estimates themselves
+def saved_fit_problems(payload: dict, rows: tuple[SavedRow, ...], source: str) -> tuple[Problem, ...]:
+    """The problems of a saved fit (the dict of its ``fit --json`` result, and its estimate rows as
+    :func:`~cfa_tool.model.saved_estimates.saved_rows` read them once): first those of its estimates themselves
     (:func:`estimate_row_problems`, whatever the file's flag says), then those its file lists."""
-    return estimate_row_problems(payload.get("estimates"), source) + listed_problems(payload.get("problems", []), source)
+    return estimate_row_problems(rows) + listed_problems(payload.get("problems", []), source)
 
 
 def listed_problems(listed: list, source: str) -> tuple[Problem, ...]:

@@ -40,6 +40,19 @@ def _plain_mean(rows: np.ndarray, axis: int) -> np.ndarray:
     return rows.sum(axis=axis) / rows.shape[axis]
 
 
+def answer_extremes(values: np.ndarray, answered: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """The lowest and the highest answer of each column of ``values`` (rows by items): what the few-categories note
+    and the screening for values that are not answers (data.odd_values) both start from.  ``answered``: the cells
+    that count as answers (default: the finite ones, gaps NaN and infinite values left out); a column without any
+    gives +inf and -inf."""
+    if answered is None:
+        answered = np.isfinite(values)
+    if answered.all():  # no gaps (the common case): reductions without a mask
+        return values.min(axis=0, initial=np.inf), values.max(axis=0, initial=-np.inf)
+    return (values.min(axis=0, initial=np.inf, where=answered),
+            values.max(axis=0, initial=-np.inf, where=answered))
+
+
 #: items answered in at most this many categories are, by common practice, analysed as ordered categories
 #: rather than as continuous (Rhemtulla, Brosseau-Liard & Savalei 2012: maximum likelihood on Pearson
 #: covariances does well from about five categories on)
@@ -52,9 +65,8 @@ def few_category_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[str,
     if not values.size:  # no rows (the reading of the data says so)
         return ()
     answered = ~np.isnan(values)
+    low, high = answer_extremes(values, answered)
     with np.errstate(invalid="ignore"):
-        low = np.where(answered, values, np.inf).min(axis=0)
-        high = np.where(answered, values, -np.inf).max(axis=0)
         whole = np.all(~answered | (values == np.round(values)), axis=0)
     few = whole & (high > low) & (high - low <= FEW_CATEGORIES - 1)
     return tuple(name for name, flag in zip(names, few) if flag)

@@ -6,13 +6,14 @@ from cfa_tool.suggest import close_names
 from cfa_tool.errors import ModelError
 from cfa_tool.language.spec import Spec
 from cfa_tool.data.odd_values import code_like
+from cfa_tool.input_files import base_name
 
 
 def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: str = "") -> None:
     """Every observed indicator must be a column; no factor may share a column's name.  ``sheet_hint``: which
     sheet of a workbook of several was read (``LoadedData.sheet_hint``), said when a variable is not found."""
     available = set(columns)
-    data_name = data_source.replace("\\", "/").rsplit("/", 1)[-1]
+    data_name = base_name(data_source)
     for factor in spec.factors:
         if factor.name.text in available:
             loc = factor.name.location
@@ -96,7 +97,7 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
 
     from cfa_tool.data.moments import row_numbers
 
-    data_name = data_source.replace("\\", "/").rsplit("/", 1)[-1]
+    data_name = base_name(data_source)
     rows = row_numbers(frame)
     found: dict[object, list[tuple[str, float, np.ndarray, str | None]]] = {}
     for name, (low, high, keying, named) in declared_scales(spec, frame).items():
@@ -154,7 +155,7 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
         return []
     from cfa_tool.data.moments import row_numbers
 
-    data_name = data_source.replace("\\", "/").rsplit("/", 1)[-1]
+    data_name = base_name(data_source)
     scale_of: dict[str, tuple[float, float, str]] = {}  # partners answered on another scale -> (min, max, factor)
     for x, (low, high, _, named) in scales.items():
         found = None if named else _outside(frame, x, low, high)

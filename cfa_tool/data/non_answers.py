@@ -26,6 +26,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.errors import printable
+from cfa_tool.input_files import base_name
 
 #: phrases that say a value is not an answer (compared after :func:`_plain`): one vocabulary for labels and cells
 NON_ANSWER_PHRASES = frozenset({
@@ -187,7 +188,7 @@ def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items=None) ->
     mine = [f for f in found if items is None or f.column in set(items)]
     if not mine:
         return None
-    name = source.replace("\\", "/").rsplit("/", 1)[-1]
+    name = base_name(source)
     by_value: dict[tuple, list[NonAnswer]] = {}
     for f in mine:
         by_value.setdefault((f.kind, f.value, f.label if f.kind is NonAnswerKind.LABELLED else None), []).append(f)

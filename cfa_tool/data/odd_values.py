@@ -28,8 +28,10 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.descriptives import answer_extremes
 from cfa_tool.data.moments import item_values
 from cfa_tool.errors import printable
+from cfa_tool.input_files import base_name
 
 MIN_OTHERS = 10  # answers a judgement needs besides the value judged
 FAR_RANGES = 2.0  # a row with values further beyond the others than this many times their range in half its columns
@@ -63,7 +65,7 @@ class OddValues:
 
     def caution(self, source: str) -> str:
         """The one line a report shows first: the columns, the value, how many rows and which."""
-        name = source.replace("\\", "/").rsplit("/", 1)[-1]
+        name = base_name(source)
         low, high = self.others
         if self.kind is OddKind.MISSING_CODE:
             value = _number(self.values[0])
@@ -175,13 +177,11 @@ def _may_stand_out(X: np.ndarray) -> np.ndarray:
     it), and at the bottom likewise; a column failing both has nothing to peel.  Comparisons with NaN keep a
     column (``_peeled`` judges it)."""
     finite = np.isfinite(X)  # the extremes over masks (no masked copy of the data: on a thousand rows its
-    if finite.all():  # allocation costs more than the comparisons); no gaps (the common case): fewer masks
-        top, bottom = X.max(axis=0, initial=-np.inf), X.min(axis=0, initial=np.inf)
+    bottom, top = answer_extremes(X, finite)  # allocation costs more than the comparisons)
+    if finite.all():  # no gaps (the common case): fewer masks
         next_top = X.max(axis=0, initial=-np.inf, where=X < top)
         next_bottom = X.min(axis=0, initial=np.inf, where=X > bottom)
     else:
-        top = X.max(axis=0, initial=-np.inf, where=finite)
-        bottom = X.min(axis=0, initial=np.inf, where=finite)
         next_top = X.max(axis=0, initial=-np.inf, where=finite & (X < top))
         next_bottom = X.min(axis=0, initial=np.inf, where=finite & (X > bottom))
     quiet = (top - next_top < next_top - bottom) & (next_bottom - bottom < top - next_bottom)

@@ -25,10 +25,23 @@ def column_parts(widths: Sequence[float], room: float, labels: int = 1) -> list[
     return [[*range(labels), *g] for g in groups]
 
 
-def label_columns(align: Sequence[str], widths: Sequence[float], room: float) -> int:
+def label_columns(align: Sequence[str], widths: Sequence[float], room: float,
+                  rows: Sequence[Sequence[str]] | None = None) -> int:
     """How many leading columns name a row: the left-aligned (text) ones before the first number, at least one,
-    and no more than take half the room together."""
+    and no more than take half the room together; and beyond half the room, those it takes to tell the rows
+    apart (``rows``: the table's cells), as long as the widest other column still fits beside them.  A bootstrap
+    table names a parameter on two rows, one per scale: a part showing the parameter without its scale would give
+    two numbers for one name."""
     count = 1
-    while count < len(align) - 1 and align[count] == "l" and sum(widths[:count + 1]) <= room / 2:
+    while count < len(align) - 1 and align[count] == "l":
+        together = sum(widths[:count + 1])
+        if together > room / 2 and (rows is None or _told_apart(rows, count)
+                                    or together + max(widths[count + 1:]) > room):
+            break
         count += 1
     return count
+
+
+def _told_apart(rows: Sequence[Sequence[str]], count: int) -> bool:
+    """Whether the first ``count`` columns name every row differently."""
+    return len({tuple(row[:count]) for row in rows}) == len(rows)

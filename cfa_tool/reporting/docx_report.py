@@ -234,7 +234,7 @@ def _add_table(document, table: ReportTable, number: int) -> None:
     wanted, least = _column_widths(table, size)
     room = _room(document)
     padded = [w + padding for w in least]
-    parts = column_parts(padded, room, label_columns(table.align, padded, room))
+    parts = column_parts(padded, room, label_columns(table.align, padded, room, table.rows))
     for k, columns in enumerate(parts):
         _caption(document, f"Table {number}" + (" (continued)" if k else ""), table.title)
         widths = _fitted([wanted[j] + padding for j in columns], [least[j] + padding for j in columns], room)

@@ -32,7 +32,11 @@ def fit_tables(result) -> list[ReportTable]:
     for g, group in enumerate(result.groups):
         heading = "Local fit" + (f", group {group.label}" if result.multigroup else "")
         out += in_section(heading, [T.residual_table(result, g)])
-    out += in_section("Modification indices", [T.modification_table(result)])
+    if result.multigroup:  # each group's under its own heading, as its local fit
+        for g, group in enumerate(result.groups):
+            out += in_section(f"Modification indices, group {group.label}", [T.modification_table(result, g)])
+    else:
+        out += in_section("Modification indices", [T.modification_table(result)])
     data = [T.item_table(result)]
     for g in range(len(result.groups)):
         data += [T.category_table(result, g), T.correlation_table(result, g)]

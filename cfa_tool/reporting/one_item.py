@@ -11,11 +11,12 @@ from __future__ import annotations
 
 def one_item_factors(rows, observed) -> tuple[str, ...]:
     """The factors with exactly one item among their loadings, in the order of their first loading.  ``rows``: a
-    fit's estimate rows, as a fit result holds them (``kind`` and ``variables``) or as its JSON writes them
-    (dictionaries); ``observed``: the model's items (a loading on a factor is not an item's)."""
+    fit's estimate rows (``kind`` and ``variables``), as a fit result holds them or as the one reader of a saved fit
+    gives them back (model.saved_estimates.SavedRow); ``observed``: the model's items (a loading on a factor is not
+    an item's)."""
     items: dict[str, set[str]] = {}
     for row in rows:
-        kind, names = (row.get("kind"), row.get("variables")) if isinstance(row, dict) else (row.kind, row.variables)
+        kind, names = row.kind, row.variables
         if kind == "loading" and len(names) == 2 and names[1] in observed:
             items.setdefault(names[0], set()).add(names[1])
     return tuple(f for f, xs in items.items() if len(xs) == 1)

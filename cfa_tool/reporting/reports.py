@@ -109,6 +109,7 @@ def _with_estimate_problems(report: Report, payload: dict, source: str) -> Repor
     from dataclasses import replace
 
     from cfa_tool.assessment.admissibility import estimate_row_problems, listed_problems
+    from cfa_tool.model.saved_estimates import saved_rows
     from cfa_tool.reporting.tables import NOT_ADMISSIBLE, ProblemNotice
     from cfa_tool.reporting.workflow_tables import SOME_NOT_ADMISSIBLE
 
@@ -120,7 +121,7 @@ def _with_estimate_problems(report: Report, payload: dict, source: str) -> Repor
             if isinstance(listed, list) else set()
         lines += [f"The estimates in this file differ from the fit its report describes (changed after the fit?), and "
                   f"they are not admissible: {q.explanation} Fit the model again rather than edit its result."
-                  for q in estimate_row_problems(payload["estimates"], source)
+                  for q in estimate_row_problems(saved_rows(payload["estimates"], source))
                   if (q.kind.value, q.parameters) not in known]
     for name, fit in _fits_in(payload):
         if fit.get("converged", True) is False:  # its views say it did not converge

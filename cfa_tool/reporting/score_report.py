@@ -68,11 +68,10 @@ def caution_lines(result) -> list[str]:
 def _one_item_sentence(fit) -> str:
     """Factors measured by one item, whose error variance the model must fix: their scores' determinacy,
     reliability and precision follow from that fixed value, not from the data (:mod:`cfa_tool.reporting.one_item`).
-    ``fit``: the fit result, or a saved fit (its JSON rows)."""
+    ``fit``: the fit result, or a saved fit (its estimate rows as read back)."""
     from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
 
-    rows = fit.estimates if hasattr(fit, "estimates") else fit.payload.get("estimates", ())
-    return one_item_sentence(one_item_factors(rows, fit.observed), "determinacy, reliability and precision")
+    return one_item_sentence(one_item_factors(fit.estimates, fit.observed), "determinacy, reliability and precision")
 
 
 def quality_table(result, k: int) -> ReportTable:
@@ -102,11 +101,11 @@ def quality_table(result, k: int) -> ReportTable:
 
 
 def _precision_of(result, q) -> tuple[ScoreMethod, tuple]:
-    """(the method, its scoring.quality.Precision per factor) of one group's scores: the first method written
-    (continuous items), the posterior means (ordinal items, whose quality holds them)."""
-    if not hasattr(q, "methods"):
-        return ScoreMethod.EXPECTED_A_POSTERIORI, q.precision
-    return result.methods[0], (q.precision(result.methods[0]) if q.factor_sd else ())
+    """(the method, its scoring.quality.Precision per factor) of one group's scores: the first method written (the
+    posterior means for ordinal items, their one method)."""
+    from cfa_tool.scoring.quality import precision_of
+
+    return result.methods[0], precision_of(q, result.methods[0])
 
 
 def precision_table(result, k: int) -> ReportTable | None:

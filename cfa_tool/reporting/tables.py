@@ -573,19 +573,30 @@ def missing_table(result) -> ReportTable | None:
                   [("Items not answered", "l"), ("Rows, weighted" if weights else "Rows", "r")], rows, note)
 
 
-def modification_table(result, limit: int = 10) -> ReportTable | None:
-    rows = result.reported_modification_indices()
+def modification_table(result, group: int | None = None, limit: int = 10) -> ReportTable | None:
+    """The largest modification indices, for one group of a fit of several (``group``, its index; each group's
+    table under its own heading, as its estimates and local fit are, so that a parameter's words need not carry its
+    group and the table keeps the width of a one-group fit: at 80 columns in the terminal a group named in every row
+    wrapped the parameter column over two lines, differently in each part of the table), or for the fit of one
+    group (``group`` None).  The data files keep the kind, the variables and the group apart."""
+    label = result.groups[group].label if group is not None and result.multigroup else None
+
+    def mine(found):
+        return found if label is None else [m for m in found if m.group == label]
+
+    key = "modification" if label is None else f"modification_{group}"
+    rows = mine(result.reported_modification_indices())
     if not rows:
         computed = result.modification_indices
-        if not result.converged or computed is None or not len(computed):
+        if not result.converged or computed is None or not len(computed) or not mine(computed):
             return None
         # computed, none at the threshold: said, so that the section does not silently vanish
-        largest = max(computed, key=lambda m: m.index)
-        name = parameter_words(largest.kind, tuple(largest.variables), largest.group, article=False)
-        return _table("modification", f"Largest modification indices (at least {result.mi_threshold:g}; none)",
+        largest = max(mine(computed), key=lambda m: m.index)
+        name = parameter_words(largest.kind, tuple(largest.variables), None if label else largest.group, article=False)
+        return _table(key, f"Largest modification indices (at least {result.mi_threshold:g}; none)",
                       [("Parameter that could be freed", "l"), ("Index", "r")],
                       [[f"none reaches {result.mi_threshold:g}; the largest: {name}", num(largest.index, 2)]],
-                      f"No parameter that could be freed has a modification index of at least "
+                      f"No parameter that could be freed{f' in group {label}' if label is not None else ''} has a modification index of at least "
                       f"{result.mi_threshold:g}: freeing any one of them alone would not improve the fit by that "
                       f"much.", values=(["Kind", "Variables", "Group", "Index"],
                                         [[largest.kind, names_text(largest.variables), largest.group or "",
@@ -593,9 +604,9 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
     shown = rows[:limit] if result.mi_top is None else rows
     title = f"Largest modification indices (at least {result.mi_threshold:g}; {len(shown)} of {len(rows)} shown)"
     body = []
-    for m in shown:  # parameters in words, as every table names them
-        body.append([parameter_words(m.kind, tuple(m.variables), m.group, article=False), num(m.index, 2),
-                     num(m.expected_change), num(m.standardized_expected_change)])
+    for m in shown:  # parameters in words, as every table names them (the group in the section's heading)
+        body.append([parameter_words(m.kind, tuple(m.variables), None if label else m.group, article=False),
+                     num(m.index, 2), num(m.expected_change), num(m.standardized_expected_change)])
     note = ("Standardized: for loadings on the fully standardized metric; for residual covariances on the residual "
             "correlation metric (the expected change over the two residual standard deviations).")
     beyond = [m for m in shown if m.kind == "residual_covariance" and abs(m.standardized_expected_change) > 1]
@@ -607,8 +618,8 @@ def modification_table(result, limit: int = 10) -> ReportTable | None:
              "way needs confirmation in new data.")
     values = [[m.kind, names_text(m.variables), m.group or "", m.index, m.expected_change, m.standardized_expected_change]
               for m in shown]
-    return _table("modification", title, [("Parameter that could be freed", "l"), ("Index", "r"), ("Expected change", "r"),
-                                          ("Standardized", "r")], body, note,
+    return _table(key, title, [("Parameter that could be freed", "l"), ("Index", "r"), ("Expected change", "r"),
+                               ("Standardized", "r")], body, note,
                   values=(["Kind", "Variables", "Group", "Index", "Expected change", "Standardized expected change"],
                           values))
 

@@ -70,7 +70,7 @@ class _ColumnParts:
             report = keyed[0]
             whole = _widths(report)
         narrow = _widths(report, wrapped_headings=True)
-        labels = label_columns(report.align, whole, room)
+        labels = label_columns(report.align, whole, room, report.rows)
         for k, columns in enumerate(column_parts(_wrapped(narrow, report.align, room), room, labels)):
             if k:
                 yield Text(f"({printable(report.title)}, continued)", style="dim")

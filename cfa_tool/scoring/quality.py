@@ -14,7 +14,7 @@ For complete answers and a linear score s = alpha + W'(x - mu) of factors F (wei
 * the correlations among each method's scores, beside the factors' correlations (Grice 2001 compares them:
   regression scores overstate them, Bartlett scores too as a rule, correlation-preserving scores keep them).
 
-Precision of one person's score (:func:`precision`), in the factor's units and in its standard deviations: the
+Precision of one person's score (:class:`Precision`), in the factor's units and in its standard deviations: the
 standard error SE, the root mean squared error of the score about its factor with every item answered; a 95%
 band of +/- 1.96 SE about the score (a normal approximation); and the smallest difference between two people's
 scores that exceeds chance at the 5% level, 1.96 sqrt(2) SE, the standard error of the difference of two
@@ -100,6 +100,13 @@ class Precision:
     band: float  # half-width of the 95% band, Z95 * SE
     smallest_difference: float  # Z95 * sqrt(2) * SE
 
+    @classmethod
+    def of(cls, factor: str, method: ScoreMethod, factor_sd: float, reliability: float,
+           standard_error: float) -> Precision:
+        """The band and the smallest real difference from the standard error (module docstring: Gulliksen 1950)."""
+        se = float(standard_error)
+        return cls(factor, method, float(factor_sd), float(reliability), se, Z95 * se, Z95 * np.sqrt(2.0) * se)
+
     @property
     def band_in_sd(self) -> float:
         return self.band / self.factor_sd
@@ -126,24 +133,34 @@ class ScoreQuality:
     factor_correlations: np.ndarray  # (m, m)
     methods: tuple[MethodQuality, ...]
     sums: tuple[SumScore, ...]
-    factor_sd: tuple[float, ...] = ()  # sqrt(Phi_kk)
+    # each method's Precision of each scored factor, methods in the order of ``methods``; the same field as the
+    # ordinal items' quality (workflows.factor_scores.OrdinalQuality), read the one way by :func:`precision_of`
+    precision: tuple[Precision, ...] = ()
 
     def method(self, method: ScoreMethod) -> MethodQuality:
         return next(q for q in self.methods if q.method is method)
-
-    def precision(self, method: ScoreMethod) -> tuple[Precision, ...]:
-        """Each scored factor's :class:`Precision` for ``method`` (module docstring)."""
-        q = self.method(method)
-        return tuple(Precision(f, method, sd, rel, se, Z95 * se, Z95 * np.sqrt(2.0) * se)
-                     for f, sd, rel, se in zip(self.factors, self.factor_sd, q.reliability, q.root_mean_squared_error)
-                     if np.isfinite(se) and np.isfinite(rel))
 
     def to_dict(self) -> dict:
         return clean({"group": self.group, "factors": list(self.factors), "determinacy": list(self.determinacy),
                       "low_determinacy": list(self.low_determinacy), "determinacy_caution": DETERMINACY_CAUTION,
                       "factor_correlations": self.factor_correlations.tolist(),
                       "methods": [q.to_dict() for q in self.methods], "sums": [s.to_dict() for s in self.sums],
-                      "precision": [p.to_dict() for q in self.methods for p in self.precision(q.method)]})
+                      "precision": [p.to_dict() for p in self.precision]})
+
+
+def precision_of(quality, method: ScoreMethod) -> tuple[Precision, ...]:
+    """The :class:`Precision` of each factor scored by ``method`` that one group's quality holds (continuous items'
+    :class:`ScoreQuality` or the ordinal items' quality, whose one method is the posterior mean)."""
+    return tuple(p for p in quality.precision if p.method is method)
+
+
+def method_precision(quality: MethodQuality, factor_sd) -> tuple[Precision, ...]:
+    """Each scored factor's :class:`Precision` for one linear method from its root mean squared error about the
+    factor (module docstring: Gulliksen 1950); ``factor_sd``: sqrt(Phi_kk) per factor."""
+    return tuple(Precision.of(f, quality.method, sd, rel, se)
+                 for f, sd, rel, se in zip(quality.factors, factor_sd, quality.reliability,
+                                           quality.root_mean_squared_error)
+                 if np.isfinite(se) and np.isfinite(rel))
 
 
 def determinacy(model: ScoringModel) -> np.ndarray:
@@ -246,7 +263,9 @@ def score_quality(model: ScoringModel, methods: tuple[ScoreMethod, ...] = LINEAR
     """Everything :class:`ScoreQuality` holds, for one group (``declared``: the items of the model's 'reversed'
     statement, None without one)."""
     rho = determinacy(model)
+    qualities = method_quality(model, methods)
+    factor_sd = np.sqrt(np.clip(np.diag(model.factor_covariance), 0.0, None))
     return ScoreQuality(model.group, model.factors, tuple(float(v) for v in rho),
                         tuple(bool(v < DETERMINACY_CAUTION) for v in rho), _correlation(model.factor_covariance),
-                        method_quality(model, methods), sum_quality(model, declared),
-                        tuple(float(v) for v in np.sqrt(np.clip(np.diag(model.factor_covariance), 0.0, None))))
+                        qualities, sum_quality(model, declared),
+                        tuple(p for q in qualities for p in method_precision(q, factor_sd)))

@@ -25,7 +25,7 @@ from cfa_tool.options import group_column
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
-from cfa_tool.scoring.quality import Z95, Precision, ScoreQuality, ordinal_sum_quality
+from cfa_tool.scoring.quality import Precision, ScoreQuality, ordinal_sum_quality
 
 
 class RowLeftOut(Enum):
@@ -134,7 +134,9 @@ class OrdinalQuality:
     sums: tuple = ()  # SumScore per factor: the keyed sum of the answers' codes (Green & Yang 2009 reliability)
     # how precise one person's score is, from the posterior SDs of the rows that answered every item of the factor
     # (their median as the standard error), and that SE's median in the lowest and the highest third of the scores
-    precision: tuple = ()  # scoring.quality.Precision per factor with such rows
+    # scoring.quality.Precision (method: the posterior mean) per factor with such rows: the field continuous items'
+    # ScoreQuality holds, read the one way by scoring.quality.precision_of
+    precision: tuple[Precision, ...] = ()
     precision_by_level: tuple = ()  # (factor, SE in the lowest third of scores, SE in the highest third)
 
     @property
@@ -401,11 +403,15 @@ def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bo
     """Scores of the rows of ``data`` with the parameters of an earlier fit (``result``): a scale calibrated in one
     sample scores another.  With groups, ``data`` needs the fit's group column, and each row is scored with its
     group's parameters (a row of a group the fit does not have gets no scores).  The quality figures are those of
-    the fitted model; the report's fit is the earlier one."""
+    the fitted model; the report's fit is the earlier one.  A fit whose solution is not admissible is refused as a
+    saved one is (:class:`~cfa_tool.errors.OptionError`, exit 2 on the command line: the fit is an input the run
+    cannot use; it estimates no model)."""
+    from cfa_tool.assessment.admissibility import refuse_inadmissible_saved_fit
+
     if not isinstance(result, FitResult):
         raise OptionError(f"scores need a fit result (cfa_tool.fit), not {type(result).__name__}")
-    if not result.admissible:
-        raise EstimationError("the fitted solution is not admissible, so no factor scores are computed with it")
+    refuse_inadmissible_saved_fit({"admissible": result.admissible, "converged": result.converged}, result.problems,
+                                  "the fit result given", "no factor scores are computed with it")
     chosen = _saved_methods(methods, result.method.ordinal, standard_errors)
     models, labels = models_of_fit(result)
     return _score_other_data(result, _spec_of(result), models, labels, data, chosen, standard_errors, id_column, sheet,
@@ -551,6 +557,7 @@ class SavedFit:
     problems: tuple
     warnings: tuple[str, ...]
     group_column: str | None
+    estimates: tuple  # model.saved_estimates.SavedRow per estimate row, read once (kind, variables, group, estimate)
     payload: dict = field(repr=False)
     source: str = "the fit result"  # the file, as messages name it
 
@@ -568,21 +575,23 @@ def read_saved_fit(path) -> SavedFit:
     an estimate that is not a number) is named in an error."""
     from cfa_tool.assessment.admissibility import saved_fit_problems
     from cfa_tool.input_files import input_json
+    from cfa_tool.model.saved_estimates import saved_rows
     from cfa_tool.pipeline.results import DataSummary
 
     source = f"'{printable(str(path))}'"
     payload = input_json(Path(path), "fit result", OptionError)
     if not isinstance(payload, dict) or payload.get("tool") != "cfa-tool" or "estimates" not in payload:
         raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)")
+    rows = saved_rows(payload["estimates"], source)  # the estimate rows, read here once
     # the estimates themselves judged as a fresh fit is, whatever the file's flag and problems say
-    problems = saved_fit_problems(payload, source)
+    problems = saved_fit_problems(payload, rows, source)
     try:
         d = payload["data"]
         counts = d.get("category_counts") or {}
         categories = tuple(tuple((float(c["value"]), int(c["rows"])) for c in counts.get(x, ())) for x in d["variables"])
         means = tuple(float(v) for v in d["means"]) if d["means"] is not None else (0.0,) * len(d["variables"])
         not_given = tuple(NotGiven(v) for v in d.get("not_given", ()))
-        if "not_given" not in d and not any(e.get("kind") == "intercept" for e in payload["estimates"]) \
+        if "not_given" not in d and not any(row.kind == "intercept" for row in rows) \
                 and not any(means) and not counts:
             not_given = (NotGiven.MEANS,)  # written before fits said so: every item mean 0 is no mean at all
         summary = DataSummary(str(d["source"]), int(d["rows_read"] if d["rows_read"] is not None else d["n_obs"]),
@@ -598,18 +607,18 @@ def read_saved_fit(path) -> SavedFit:
         raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)") from None
     return SavedFit(str(model.get("name")), str(model.get("source")), str(payload.get("estimator")), int(payload["n_obs"]),
                     summary, tuple(summary.variables), problems, tuple(payload.get("warnings", ())),
-                    payload.get("group_column"), payload, source)
+                    payload.get("group_column"), rows, payload, source)
 
 
 def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
     """Each group's scoring model from ``spec`` (the model file the fit was made with) and the estimates of its
     JSON result, read onto the model's parameter table by the one reader of saved estimates
     (:func:`~cfa_tool.model.saved_estimates.values_on_model`: an error naming what does not match)."""
-    from cfa_tool.model.saved_estimates import saved_rows, values_on_model
+    from cfa_tool.model.saved_estimates import values_on_model
     from cfa_tool.pipeline.continuous import model_structure
     from cfa_tool.scoring.model import scoring_model
 
-    rows = saved_rows(saved.payload["estimates"], saved.source)
+    rows = saved.estimates
     multi = saved.group_column is not None
     labels = tuple(g["name"] for g in saved.payload.get("groups", ())) if multi else None
     _same_item_names(spec, saved.data.variables)
@@ -892,8 +901,7 @@ def _ordinal_precision(base, v: np.ndarray, e: np.ndarray, answered: np.ndarray,
         s, sd = v[rows, f], e[rows, f]
         se = float(np.median(sd))
         low, high = np.quantile(s, [1 / 3, 2 / 3])
-        precision.append(Precision(name, ScoreMethod.EXPECTED_A_POSTERIORI, float(factor_sd[f]), float(reliability[f]),
-                                   se, Z95 * se, Z95 * np.sqrt(2.0) * se))
+        precision.append(Precision.of(name, ScoreMethod.EXPECTED_A_POSTERIORI, factor_sd[f], reliability[f], se))
         by_level.append((name, float(np.median(sd[s <= low])), float(np.median(sd[s >= high]))))
     return tuple(precision), tuple(by_level)
 

@@ -214,8 +214,9 @@ def fitted_estimates(fitted) -> tuple[str, bool, bool, dict]:
     from pathlib import Path
 
     from cfa_tool.input_files import input_json
+    from cfa_tool.pipeline.results import FitResult
 
-    if hasattr(fitted, "to_dict") and hasattr(fitted, "estimates"):
+    if isinstance(fitted, FitResult):
         payload = fitted.to_dict()
         return "the fit result given", fitted.multigroup, bool(fitted.method.ordinal), payload
     source = "the result given"
@@ -235,7 +236,8 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
     from cfa_tool.model.saved_estimates import saved_rows, values_on_model
 
     source, grouped, ordinal, payload = fitted_estimates(fitted)
-    problems = saved_fit_problems(payload, source)  # reads every row: one that is not a number is named here
+    rows = saved_rows(payload["estimates"], source)  # read once: a row that is not a number is named here
+    problems = saved_fit_problems(payload, rows, source)
     if grouped:
         raise OptionError(f"{source}: the fit has groups; population values are taken from a fit of one group")
     refuse_inadmissible_saved_fit(payload, problems, source, "it cannot serve as a population")
@@ -244,7 +246,7 @@ def _population_from_fit(spec: Spec, fitted) -> Population:
     table = build_parameter_table(spec)
     # intercepts and factor means (a fit with gaps or groups estimates them) are not part of a population whose
     # items are simulated centred: set aside for the items' means, not taken for the parameters of another model
-    saved = values_on_model(saved_rows(payload["estimates"], source), table, source, spec.source,
+    saved = values_on_model(rows, table, source, spec.source,
                             aside=("intercept", "mean", "threshold"))
     thresholds = saved.thresholds()
     if ordinal and not thresholds:

@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import numpy as np
 import pandas as pd
+import pytest
 
 import cfa_tool
 from cfa_tool.data.descriptives import few_category_items
@@ -51,3 +52,29 @@ def test_compare_and_invariance_give_the_same_note():
     two = "factor f: y1, y2\nfactor g: y3, y4\n"
     assert any("answer categories" in w for w in compare([MODEL, two], data).notes)
     assert any("answer categories" in w for w in invariance(MODEL, data, "site").notes)
+
+
+def test_one_routine_finds_each_items_lowest_and_highest_answer():
+    """data.descriptives.answer_extremes, which the few-categories note and the odd-values screening both use, against
+    numpy's nanmin and nanmax over the answers (gaps and, by default, infinite values left out)."""
+    from cfa_tool.data.descriptives import answer_extremes
+    from cfa_tool.data.odd_values import _may_stand_out
+
+    rng = np.random.default_rng(11)
+    X = np.round(rng.normal(3, 1, size=(50, 5)))
+    complete = answer_extremes(X)
+    np.testing.assert_array_equal(complete[0], np.nanmin(X, axis=0))
+    np.testing.assert_array_equal(complete[1], np.nanmax(X, axis=0))
+    X[::4, 1], X[3, 2], X[:, 4] = np.nan, np.inf, np.nan  # gaps, an infinite value, a column without answers
+    low, high = answer_extremes(X)
+    answers = np.where(np.isfinite(X), X, np.nan)
+    with np.errstate(invalid="ignore"), pytest.warns(RuntimeWarning):  # numpy warns of the column without answers
+        np.testing.assert_array_equal(low[:4], np.nanmin(answers, axis=0)[:4])
+        np.testing.assert_array_equal(high[:4], np.nanmax(answers, axis=0)[:4])
+    assert low[4] == np.inf and high[4] == -np.inf
+    # the few-categories rule counts an infinite value as an answer (the item spans no few categories)
+    assert answer_extremes(X, ~np.isnan(X))[1][2] == np.inf
+    # the screening's first cut keeps the column with a value far beyond the others (a code: -99)
+    X[7, 0] = -99
+    with np.errstate(invalid="ignore"):  # as odd_values calls it: the column without answers compares NaN
+        assert 0 in _may_stand_out(X).tolist()

@@ -163,8 +163,14 @@ def test_modification_and_bootstrap_tables_name_parameters_in_words(hs_data):
     assert [row[0] for row in table.rows] == [parameter_words(m.kind, tuple(m.variables), article=False) for m in shown]
     assert "loading of x9 on visual" in [row[0] for row in table.rows]  # the largest index of this model
     assert [tuple(row[:2]) for row in table.values] == [(m.kind, ", ".join(m.variables)) for m in shown]
-    grouped = modification_table(cfa_tool.fit(THREE_FACTORS, hs_data, group="school"))
-    assert all(re.search(r" in group (Pasteur|Grant-White)$", row[0]) for row in grouped.rows)
+    by_school = cfa_tool.fit(THREE_FACTORS, hs_data, group="school")
+    assert {g.label for g in by_school.groups} == {"Pasteur", "Grant-White"}
+    for g, school in enumerate(g.label for g in by_school.groups):  # each group's table; its group in its heading
+        grouped = modification_table(by_school, g)
+        mine = [m for m in by_school.reported_modification_indices() if m.group == school][:len(grouped.rows)]
+        assert [row[0] for row in grouped.rows] == [parameter_words(m.kind, tuple(m.variables), article=False)
+                                                   for m in mine]
+        assert {row[2] for row in grouped.values} == {school}  # the data files keep the group
     intervals = (BootInterval("loading", ("visual", "x2"), "unstandardized", 0.55, (0.3, 0.8), (0.31, 0.81), 0.1),
                  BootInterval("residual_covariance", ("x7", "x8"), "standardized", 0.2, (0.1, 0.3), (0.1, 0.3), 0.05))
     report = bootstrap_report(BootstrapResult(fitted, 500, 500, 1, intervals, None, None))

@@ -24,6 +24,7 @@ from cfa_tool.reporting.tables import ReportTable
 from cfa_tool.reporting.fit_document import fit_report, fit_tables
 from cfa_tool.reporting.text_formats import report_markdown
 from cfa_tool.resources import resource_dir
+from tests.conftest import THREE_FACTORS
 
 ORDINAL_WORDS = "ordinal"
 
@@ -143,6 +144,11 @@ def test_column_parts_is_the_terminals_rule():
     assert label_columns(("l", "l", "r", "r"), [6, 6, 4, 4], 40) == 2
     assert label_columns(("l", "l", "r", "r"), [15, 15, 4, 4], 40) == 1  # labels may not take more than half the room
     assert label_columns(("l", "r", "l", "r"), [6, 4, 6, 4], 40) == 1
+    # beyond half the room, the text columns it takes to tell the rows apart, while the widest other column fits
+    named_twice = [("loading of x2 on visual", "std.", "0.1"), ("loading of x2 on visual", "unstd.", "0.2")]
+    assert label_columns(("l", "l", "r"), [30, 8, 12], 60, named_twice) == 2
+    assert label_columns(("l", "l", "r"), [30, 8, 12], 60, named_twice[:1]) == 1  # the first column tells them apart
+    assert label_columns(("l", "l", "r"), [30, 8, 30], 60, named_twice) == 1  # no room beside them
 
 
 def test_a_split_table_repeats_its_label_columns_in_the_terminal():
@@ -157,6 +163,39 @@ def test_a_split_table_repeats_its_label_columns_in_the_terminal():
     SafeConsole(file=out, width=60, no_color=True).print(rich_table(table))
     parts = out.getvalue().split("continued")
     assert len(parts) > 1 and all("group2" in part for part in parts)
+
+
+def test_split_tables_at_80_columns_keep_every_rows_names(hs_data):
+    """A row of a table split into parts at 80 columns keeps its names in every part, on one line: the bootstrap's
+    scale beside its parameter (each parameter has a row per scale), and the modification indices of a fit of
+    several groups in a table per group, whose parameter words need not carry the group (they wrapped over two
+    lines, differently in each part).  Holzinger & Swineford (1939) by school."""
+    import cfa_tool
+    from cfa_tool.reporting.terminal import report_text
+    from cfa_tool.reporting.workflow_tables import bootstrap_report
+    from cfa_tool.workflows.bootstrap import BootInterval, BootstrapResult
+
+    fitted = cfa_tool.fit(THREE_FACTORS, hs_data)
+    intervals = tuple(BootInterval("residual_covariance", ("x7", "x8"), scale, 0.2, (0.1, 0.3), (0.11, 0.31), 0.05)
+                      for scale in ("unstandardized", "standardized"))
+    text = report_text(bootstrap_report(BootstrapResult(fitted, 500, 500, 1, intervals, None, None)), 80)
+    parts = text.split("continued)")
+    assert len(parts) > 1
+    for part in parts[1:]:
+        rows = [line for line in part.splitlines() if "residual covariance of x7 and x8" in line]
+        assert len(rows) == 2 and "unstd." in rows[0] and "std." in rows[1], part
+
+    by_school = cfa_tool.fit(THREE_FACTORS, hs_data, group="school")
+    grouped = fit_report(by_school)
+    sections = [t.section for t in grouped.tables if t.key.startswith("modification")]
+    assert sections == [f"Modification indices, group {g.label}" for g in by_school.groups]
+    assert {g.label for g in by_school.groups} == {"Pasteur", "Grant-White"}
+    text = report_text(grouped, 80)
+    shown = text[text.index(sections[0]):]
+    for line in shown[:shown.index("Freeing parameters")].splitlines():
+        assert len(line.rstrip()) <= 80 and "in group" not in line
+        if line.startswith(" residual covariance of") or line.startswith(" loading of"):
+            assert line.rstrip()[-1].isdigit(), line  # the parameter's words and its number on one line
 
 
 def test_no_ordinal_note_under_a_continuous_fit_in_any_format(rider, word):

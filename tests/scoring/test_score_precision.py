@@ -14,6 +14,7 @@ import pytest
 import cfa_tool
 from cfa_tool.reporting.score_report import scores_report
 from cfa_tool.scoring.methods import ScoreMethod
+from cfa_tool.scoring.quality import precision_of
 
 
 def test_standard_error_band_and_smallest_difference_by_hand(hs_data):
@@ -24,7 +25,7 @@ def test_standard_error_band_and_smallest_difference_by_hand(hs_data):
     phi = est[("factor_variance", ("visual",))]
     sigma = phi * np.outer(lam, lam) + theta
     se = np.sqrt(phi - phi**2 * lam @ np.linalg.solve(sigma, lam))
-    (p,) = result.quality[0].precision(ScoreMethod.REGRESSION)
+    (p,) = precision_of(result.quality[0], ScoreMethod.REGRESSION)
     assert p.standard_error == pytest.approx(se, rel=1e-8)
     assert p.band == pytest.approx(1.959964 * se, rel=1e-6)
     assert p.smallest_difference == pytest.approx(1.959964 * np.sqrt(2) * se, rel=1e-6)
@@ -39,13 +40,32 @@ def test_standard_error_band_and_smallest_difference_by_hand(hs_data):
     assert len(low) == 1 and f"visual {p.reliability:.2f}".replace("0.", ".") in low[0]
 
 
+def test_the_precision_table_is_of_the_first_method_written(hs_data):
+    """Continuous items' quality holds every method's precision in one field, as the ordinal items' quality holds the
+    posterior means': the report reads the first method written from it.  Bartlett scores' error variance
+    (L' Theta^-1 L)^-1 (Bartlett 1937; the formula recalled from memory) by hand."""
+    result = cfa_tool.scores("factor visual: x1, x2, x3\n", hs_data, methods=["bartlett", "regression"])
+    q = result.quality[0]
+    assert [p.method for p in q.precision] == [ScoreMethod.REGRESSION, ScoreMethod.BARTLETT,
+                                               ScoreMethod.CORRELATION_PRESERVING]
+    est = {(r.kind, r.variables): r.estimate for r in result.fit.estimates}
+    lam = np.array([est[("loading", ("visual", f"x{i}"))] for i in (1, 2, 3)])
+    theta = np.array([est[("residual_variance", (f"x{i}",))] for i in (1, 2, 3)])
+    se = np.sqrt(1.0 / (lam @ (lam / theta)))
+    (p,) = precision_of(q, ScoreMethod.BARTLETT)
+    assert p.standard_error == pytest.approx(se, rel=1e-8)
+    table = next(t for t in scores_report(result).tables if t.title.startswith("How precise"))
+    assert table.rows[0][:2] == ("visual", f"{se:.2f}") and "For Bartlett scores" in table.note
+    assert [d["method"] for d in q.to_dict()["precision"]] == ["regression", "bartlett", "correlation-preserving"]
+
+
 def test_no_precision_caution_when_the_scores_are_reliable_enough():
     rng = np.random.default_rng(12)
     eta = rng.normal(size=(600, 1))
     data = pd.DataFrame(eta * 0.95 + rng.normal(size=(600, 8)) * np.sqrt(1 - 0.95**2),
                         columns=[f"q{i}" for i in range(1, 9)])
     result = cfa_tool.scores("factor f: q1..q8\n", data)
-    (p,) = result.quality[0].precision(ScoreMethod.REGRESSION)
+    (p,) = precision_of(result.quality[0], ScoreMethod.REGRESSION)
     assert p.reliability > 0.9
     assert not [c for c in scores_report(result).cautions if "decisions about individuals usually need" in c]
 

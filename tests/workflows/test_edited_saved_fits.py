@@ -15,6 +15,7 @@ import json
 import pytest
 
 from cfa_tool.assessment.admissibility import ProblemKind, estimate_row_problems
+from cfa_tool.model.saved_estimates import saved_rows
 from cfa_tool.cli import main
 from tests.conftest import DATASETS, THREE_FACTORS
 
@@ -42,17 +43,19 @@ def _edited(saved: dict, kind: str, variables: list[str], value: float) -> dict:
 
 
 def test_the_estimates_of_an_admissible_fit_have_no_problem(saved):
-    assert estimate_row_problems(saved["estimates"]) == ()
+    assert estimate_row_problems(saved_rows(saved["estimates"], "the fit")) == ()
 
 
 def test_a_negative_error_variance_and_a_factor_correlation_beyond_one_are_found(saved):
-    found = estimate_row_problems(_edited(saved, "residual_variance", ["x1"], -0.01)["estimates"])
+    edited = _edited(saved, "residual_variance", ["x1"], -0.01)
+    found = estimate_row_problems(saved_rows(edited["estimates"], "the fit"))
     assert [(q.kind, q.parameters, q.value) for q in found] == [
         (ProblemKind.NEGATIVE_RESIDUAL_VARIANCE, ("residual_variance(x1)",), -0.01)]
     phi = {e["variables"][0]: e["estimate"] for e in saved["estimates"] if e["kind"] == "factor_variance"}
     # a covariance of 2 sqrt(var(visual) var(textual)): a correlation of 2
     big = 2.0 * (phi["visual"] * phi["textual"]) ** 0.5
-    found = estimate_row_problems(_edited(saved, "factor_covariance", ["visual", "textual"], big)["estimates"])
+    edited = _edited(saved, "factor_covariance", ["visual", "textual"], big)
+    found = estimate_row_problems(saved_rows(edited["estimates"], "the fit"))
     assert [q.kind for q in found] == [ProblemKind.FACTOR_CORRELATION_BEYOND_ONE]
     assert found[0].value == pytest.approx(2.0)
 
@@ -65,7 +68,8 @@ def test_a_genuinely_inadmissible_fit_is_found_as_the_fit_itself_found_it(hs_dat
         ProblemKind.NEGATIVE_RESIDUAL_VARIANCE, ProblemKind.NEGATIVE_FACTOR_VARIANCE,
         ProblemKind.FACTOR_CORRELATION_BEYOND_ONE, ProblemKind.RESIDUAL_CORRELATION_BEYOND_ONE,
         ProblemKind.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE, ProblemKind.RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE)}
-    assert own and {(q.kind, q.parameters) for q in estimate_row_problems(heywood.to_dict()["estimates"])} == own
+    assert own and {(q.kind, q.parameters) for q in estimate_row_problems(
+        saved_rows(heywood.to_dict()["estimates"], "the fit"))} == own
 
 
 def test_scores_simulate_and_power_simulation_refuse_an_edited_fit_in_one_line(tmp_path, saved, capsys):
@@ -208,3 +212,52 @@ def test_the_one_reader_gives_the_fit_s_own_free_values(hs_three):
     values = values_on_model(saved_rows(hs_three.to_dict()["estimates"], "fit"), table, "fit", "hs.cfa",
                              aside=("intercept", "mean"))
     assert np.array_equal(values.theta, hs_three.theta)
+
+
+def test_a_saved_fits_rows_are_read_once_by_each_command(tmp_path, saved, monkeypatch):
+    """The one reader of saved estimates (model.saved_estimates.saved_rows) reads a saved fit's rows once per use:
+    its problems, the scoring models, the one-item note and the population take the rows it gave (scores and
+    simulate read them twice before)."""
+    import cfa_tool.model.saved_estimates as reader
+    from cfa_tool.workflows.factor_scores import score_with_saved_fit
+    from cfa_tool.workflows.simulation import simulate
+
+    calls = []  # one per row read: every reader of the module's rows makes its SavedRow values there
+    original = reader.SavedRow
+
+    def counted(*args):
+        calls.append(args)
+        return original(*args)
+
+    monkeypatch.setattr(reader, "SavedRow", counted)
+    model, fitted = tmp_path / "hs.cfa", tmp_path / "fit.json"
+    model.write_text(THREE_FACTORS)
+    fitted.write_text(json.dumps(saved))
+    scored = score_with_saved_fit(model, fitted, HS_FILE)
+    assert len(calls) == len(saved["estimates"]) and scored.rows == 301  # Holzinger & Swineford (1939): 301 children
+    calls.clear()
+    simulated = simulate(model, n=40, seed=1, population=fitted)
+    assert len(calls) == len(saved["estimates"]) and len(simulated.frame) == 40
+
+
+def test_an_inadmissible_fit_is_refused_alike_in_python_and_on_the_command_line(tmp_path, hs_data, capsys):
+    """FitResult.scores (workflows.factor_scores.score_with_fit) refuses a fit whose solution is not admissible with
+    the error the command line gives a saved one: OptionError, exit 2 (the fit is an input the run cannot use; it
+    raised EstimationError, the exit-3 type, before).  The Heywood case of Holzinger & Swineford (1939) with two
+    correlated residuals added, as above."""
+    import cfa_tool
+    from cfa_tool.errors import EstimationError, OptionError
+
+    model_text = THREE_FACTORS + "covary x7, x8\ncovary x8, x9\n"
+    heywood = cfa_tool.fit(model_text, hs_data)
+    assert not heywood.admissible
+    with pytest.raises(OptionError) as in_python:
+        heywood.scores(hs_data)
+    assert not isinstance(in_python.value, EstimationError)
+    model, fitted = tmp_path / "heywood.cfa", tmp_path / "heywood.json"
+    model.write_text(model_text)
+    fitted.write_text(json.dumps(heywood.to_dict() | {"tool": "cfa-tool"}))
+    code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", fitted, "--output", tmp_path / "s.csv"],
+                        capsys)
+    said = str(in_python.value).split(": ", 1)[1]  # the same words after the name of the fit
+    assert code == 2 and said.startswith("the fitted solution is not admissible (it has ") and said in err, err
