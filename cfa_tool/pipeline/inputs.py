@@ -15,7 +15,7 @@ from cfa_tool.data.groups import split_moments
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.matching import answer_range_notes, check_columns, check_declared_ranges
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
-from cfa_tool.data.non_answers import non_answer_caution
+from cfa_tool.data.non_answers import non_answer_caution, non_answer_clause
 from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
@@ -315,12 +315,21 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     with odd_values_named(loaded):
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                        ordinal_estimator, design), ids_by_row_number(ids, frame))
-    result = with_odd_values(result, loaded)
-    codes = missing_codes_option(missing_codes)
-    if codes:  # kept with the fit: scores of other data with it read them so too
-        result = replace(result, data=replace(result.data, missing_codes=codes))
+    result = with_missing_reading(with_odd_values(result, loaded), loaded, missing_codes)
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
+
+
+def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
+    """``result`` (a fit of rows) with what was read as no answer kept in its data: the ``missing_codes`` given
+    (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
+    no answer (``loaded.non_answers``), which the methods paragraph names."""
+    codes = missing_codes_option(missing_codes)
+    items = set(result.observed)
+    marked = tuple(f for f in loaded.non_answers if f.column in items)
+    if not codes and not marked:
+        return result
+    return replace(result, data=replace(result.data, missing_codes=codes, non_answers=marked))
 
 
 def odd_value_problems(loaded: LoadedData) -> tuple:
@@ -329,9 +338,10 @@ def odd_value_problems(loaded: LoadedData) -> tuple:
     every view (assessment.admissibility.Problem)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    marked = non_answer_caution(loaded.non_answers, loaded.source,
-                                loaded.items.names if loaded.items is not None else None)
-    return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
+    items = loaded.items.names if loaded.items is not None else None
+    marked = non_answer_caution(loaded.non_answers, loaded.source, items)
+    words = non_answer_clause(loaded.non_answers, items)
+    return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked, words=words),) if marked else ()) + tuple(
         Problem(ProblemKind.VALUES_NOT_ANSWERS, (), None, odd.caution(loaded.source), odd.advice())
         for odd in loaded.odd_values)
 

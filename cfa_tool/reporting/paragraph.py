@@ -16,6 +16,7 @@ import math
 from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
+from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
@@ -294,6 +295,20 @@ def _pairs_with_gaps(result) -> bool:
     return pairs is not None and pairs[0] < result.n_obs
 
 
+def _read_as_missing(data) -> str:
+    """What was read as no answer, in clauses of the rows' phrase: the codes the user declared (--missing-codes) and
+    the values the data file itself marks as no answer, with their items ('' when neither)."""
+    clauses = []
+    codes = [f"{c:g}" for c in getattr(data, "missing_codes", ())]
+    if codes:
+        clauses.append(f"the code{'s' if len(codes) > 1 else ''} {_list(codes)}, declared to mean no answer, "
+                       f"{'were' if len(codes) > 1 else 'was'} treated as missing")
+    marked = non_answer_clause(getattr(data, "non_answers", ()))
+    if marked:
+        clauses.append(marked)
+    return "; ".join(clauses)
+
+
 def _sample_phrase(result) -> str:
     data = result.data
     text = f"N = {result.n_obs}"
@@ -311,9 +326,9 @@ def _sample_phrase(result) -> str:
     if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
                  f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair{_PAIRWISE_ASSUMPTION}")
-    marked = next((p for p in getattr(result, "problems", ()) if p.kind is ProblemKind.VALUES_READ_AS_MISSING), None)
-    if marked is not None:
-        text += f"; {marked.phrase()}"  # a clause: the values were treated as missing
+    read = _read_as_missing(data)
+    if read:
+        text += f"; {read}"
     if data.rows_dropped:
         if full_information or result.method.missing is MissingData.PAIRWISE:
             text += f"; {data.rows_dropped} of {data.rows_read} rows answered no model variable and were left out"
@@ -519,7 +534,8 @@ def _comparison_rows(comparison) -> str:
                if dropped else "")
     left = (f"; {dropped} of {n + dropped} rows answered none of some model's variables and were left out"
             if dropped and comparison.missing is not MissingData.LISTWISE else "")
-    return f"N = {n}" + (f"; {how}" if how else "") + left
+    read = _read_as_missing(comparison.results[0].data)
+    return f"N = {n}" + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
 
 
 def comparison_paragraph(comparison) -> str:
