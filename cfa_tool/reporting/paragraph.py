@@ -16,6 +16,7 @@ import math
 from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
+from cfa_tool.assessment.reliability import Keying
 from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
@@ -395,6 +396,82 @@ def _weak_factor_sentence(result, subject: str) -> str:
     return " ".join(parts)
 
 
+def _reverse_keyed_sentence(d) -> str:
+    """The items a 'reversed' statement declares reverse-keyed, with their answer scale ('' without one)."""
+    parts = []
+    for items, lowest, highest in d.reverse_keyed:
+        many = len(items) > 1
+        parts.append(f"the item{'s' if many else ''} {_list(list(items))} {'were' if many else 'was'} declared "
+                     f"reverse-keyed (worded against {'their factors' if many else 'its factor'}; answers from "
+                     f"{lowest:g} to {highest:g})")
+    return _capital("; ".join(parts)) + "." if parts else ""
+
+
+def _scale_sentences(d) -> list[str]:
+    """The items declared reverse-keyed, then how each factor got its scale (what the declaration changed in it)."""
+    found = [_reverse_keyed_sentence(d), _scale_sentence(d) if d.scales else "", _method_scale_sentence(d)]
+    return [sentence for sentence in found if sentence]
+
+
+def _method_scale_sentence(d) -> str:
+    """How a method factor scaled by a marker got its direction when some of its items are declared reverse-keyed:
+    a 'reversed' statement does not orient method factors, so the marker is the method factor's first item at +1
+    and the factor points the way of its items' raw answers ('' when no method factor is in that case)."""
+    keyed = {x for items, _, _ in d.reverse_keyed for x in items}
+    clauses = [f"the loading of {s.factor}'s first item, {s.marker}, was fixed to +1, so that {s.factor} points the "
+               f"way of its items' raw answers" for s in d.scales
+               if s.factor in set(d.method_factors) and s.method == "marker" and s.marker in keyed]
+    if not clauses:
+        return ""
+    return f"The reverse-keyed declaration does not orient method factors: {'; '.join(clauses)}."
+
+
+def _keyed_sum_words(rows) -> str:
+    """Which items the keyed sums reverse and why (the reliability rows' own keys), as a closing clause."""
+    reversed_items = list(dict.fromkeys(x for r in rows for x in r.reversed))
+    if not reversed_items:
+        return ""
+    declared = all(r.keying is Keying.DECLARED for r in rows)
+    why = ("as declared" if declared else
+           f"as {'their loadings run' if len(reversed_items) > 1 else 'its loading runs'} against the other items of "
+           f"{'their factors' if len(reversed_items) > 1 else 'its factor'}")
+    return f", with {_list(reversed_items)} reversed in the sums ({why})"
+
+
+def _reliability_sentence(result) -> str:
+    """The reliability of each factor's keyed sum score as the fit computed it (assessment.reliability): omega
+    (McDonald 1999), for a higher-order factor omega hierarchical (Zinbarg, Revelle, Yovel & Li 2005); for ordinal
+    items the omega of the observed sum of the answers' codes (Green & Yang 2009).  A fit of one group only: with
+    groups the coefficients differ by group and stay in the report's tables.  '' when none was computed."""
+    if result.multigroup or not result.groups:
+        return ""
+    rows = list(result.groups[0].reliability)
+
+    def shown(value) -> bool:
+        return value is not None and math.isfinite(value)
+
+    if result.method.ordinal:
+        found = [r for r in rows if shown(r.observed_sum_omega)]
+        if not found:
+            return ""
+        values = _list([f"{unit(r.observed_sum_omega, 2)} for {r.factor}" for r in found])
+        return (f"The reliability of each factor's keyed sum of the answers' codes (the omega of the observed sum, from "
+                f"the fitted thresholds, loadings and factor variances; Green & Yang, 2009) was {values}"
+                f"{_keyed_sum_words(found)}.")
+    first = [r for r in rows if r.level != "higher-order" and shown(r.omega)]
+    higher = [r for r in rows if r.level == "higher-order" and shown(r.omega_hierarchical)]
+    parts = []
+    if first:
+        parts.append(f"omega (McDonald, 1999) was {_list([f'{unit(r.omega, 2)} for {r.factor}' for r in first])}")
+    if higher:
+        parts.append("omega hierarchical (Zinbarg, Revelle, Yovel & Li, 2005) was "
+                     + _list([f"{unit(r.omega_hierarchical, 2)} for {r.factor}" for r in higher]))
+    if not parts:
+        return ""
+    return (f"For the reliability of each factor's keyed sum score, {'; '.join(parts)}"
+            f"{_keyed_sum_words(first + higher)}.")
+
+
 def methods_paragraph(result) -> str:
     if not result.converged or result.fit is None:
         return "The model did not converge, so no results are reported."
@@ -404,8 +481,7 @@ def methods_paragraph(result) -> str:
     if d is not None:
         parts.append(f"A confirmatory factor analysis with {_structure(result, d)} was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
-        if d.scales:
-            parts.append(_scale_sentence(d))
+        parts += _scale_sentences(d)
         if d.exploratory:
             parts.append(_block_sentences(result, d))
         departures = _departures(d)
@@ -475,6 +551,9 @@ def methods_paragraph(result) -> str:
                          f"{unit(corr[0], 2)}.")
         else:
             parts.append(f"Factor correlations{which} ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}.")
+    reliability = _reliability_sentence(result)
+    if reliability:
+        parts.append(reliability)
     if result.fit.df > 0 and not inadmissible:
         parts.append("Fit was judged against conventional guide values (e.g., CFI \u2265 .95, RMSEA \u2264 .06, "
                      "SRMR \u2264 .08; Hu & Bentler, 1999), which are conventions rather than strict criteria.")
@@ -491,9 +570,7 @@ def _model_sentences(name: str, result) -> str:
     d = result.description
     if d is None:
         return f"{name} had {_count(len(result.observed), 'indicator')}."
-    parts = [f"{name} had {_structure(result, d).rstrip(',')}."]
-    if d.scales:
-        parts.append(_scale_sentence(d))
+    parts = [f"{name} had {_structure(result, d).rstrip(',')}."] + _scale_sentences(d)
     departures = _departures(d)
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))
@@ -710,8 +787,7 @@ def invariance_paragraph(result, levels) -> str:
         parts.append(f"The configural model had {_structure(first, d).rstrip(',')}, with the same pattern in every "
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
                      f"{result.groups[0]} were fixed at zero.")
-        if d.scales:
-            parts.append(_scale_sentence(d))
+        parts += _scale_sentences(d)
         departures = _departures(d)
         if departures:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))
