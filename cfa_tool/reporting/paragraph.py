@@ -472,11 +472,33 @@ def _reliability_sentence(result) -> str:
             f"{_keyed_sum_words(first + higher)}.")
 
 
+def _factor_means_sentence(result) -> str:
+    """Where a fit in groups estimated its factor means and where it fixed them at zero (its own mean parameters):
+    with intercepts held equal the means of every group but the reference are estimated; without, every group's
+    are zero ('' for a fit of one group, or one without mean parameters)."""
+    means = [r for r in result.estimates if r.kind == "mean"]
+    if not result.multigroup or not means:
+        return ""
+    labels = [g.label for g in result.groups]
+    at_zero = [g for g in labels if all(not r.free and r.estimate == 0.0 for r in means if r.group == g)]
+    estimated = {g: [r.variables[0] for r in means if r.group == g and r.free] for g in labels}
+    every = {r.variables[0] for r in means}
+    if len(at_zero) == len(labels):
+        return "The factor means were fixed at zero in every group."
+    parts = [f"fixed at zero in {_list(at_zero)}"] if at_zero else []
+    whole = [g for g in labels if estimated[g] and set(estimated[g]) == every]
+    if whole:
+        parts.append(f"estimated in {_list(whole)}")
+    parts += [f"estimated for {_list(estimated[g])} in {g}" for g in labels if estimated[g] and g not in whole]
+    return f"The factor means were {_list(parts)}." if parts else ""
+
+
 def methods_paragraph(result) -> str:
     if not result.converged or result.fit is None:
         return "The model did not converge, so no results are reported."
     d = result.description
-    groups = f" in {len(result.groups)} groups defined by {result.group_column}" if result.multigroup else ""
+    groups = (f" in {_count(len(result.groups), 'group')} defined by {result.group_column} ("
+              + "; ".join(f"{g.label}, n = {g.data.n_obs}" for g in result.groups) + ")" if result.multigroup else "")
     parts = []
     if d is not None:
         parts.append(f"A confirmatory factor analysis with {_structure(result, d)} was estimated{groups} by "
@@ -490,6 +512,9 @@ def methods_paragraph(result) -> str:
         if d.invariant:
             parts.append(f"Held equal across groups: {_list(equality_words(d.invariant))}" + (
                 f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + ".")
+        means = _factor_means_sentence(result)
+        if means:
+            parts.append(means)
     else:
         parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")

@@ -1,0 +1,44 @@
+"""The methods paragraph of a fit in groups names each group with its size and says where the factor means were
+estimated and where they were fixed at zero, as the fit's own mean parameters say: without equal intercepts every
+group's means are zero; with them the reference group's are zero and the others' estimated.  Group sizes of
+Holzinger & Swineford (1939): 156 pupils of the Pasteur school, 145 of Grant-White."""
+
+from __future__ import annotations
+
+import cfa_tool
+from cfa_tool.reporting.paragraph import methods_paragraph
+from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+
+def _flat(text: str) -> str:
+    return " ".join(text.split())
+
+
+def _means(result) -> dict[str, set[bool]]:
+    """Per group, whether its factor means are free (the fit's own parameters)."""
+    out: dict[str, set[bool]] = {}
+    for r in result.estimates:
+        if r.kind == "mean":
+            out.setdefault(r.group, set()).add(r.free)
+    return out
+
+
+def test_without_equal_intercepts_every_groups_means_are_zero():
+    result = cfa_tool.fit(THREE_FACTORS + "invariance metric\n", holzinger_swineford(), group="school")
+    assert _means(result) == {"Grant-White": {False}, "Pasteur": {False}}
+    assert [(g.label, g.data.n_obs) for g in result.groups] == [("Grant-White", 145), ("Pasteur", 156)]
+    text = _flat(methods_paragraph(result))
+    assert "estimated in two groups defined by school (Grant-White, n = 145; Pasteur, n = 156) by" in text
+    assert "The factor means were fixed at zero in every group." in text
+
+
+def test_with_equal_intercepts_the_other_groups_means_are_estimated():
+    result = cfa_tool.fit(THREE_FACTORS + "invariance scalar\n", holzinger_swineford(), group="school",
+                          reference_group="Pasteur")
+    assert _means(result) == {"Pasteur": {False}, "Grant-White": {True}}
+    text = _flat(methods_paragraph(result))
+    assert "The factor means were fixed at zero in Pasteur and estimated in Grant-White." in text
+
+
+def test_a_fit_of_one_group_says_nothing_of_factor_means():
+    assert "factor means" not in methods_paragraph(cfa_tool.fit(THREE_FACTORS, holzinger_swineford()))
