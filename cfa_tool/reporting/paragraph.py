@@ -493,6 +493,29 @@ def _factor_means_sentence(result) -> str:
     return f"The factor means were {_list(parts)}." if parts else ""
 
 
+def _latent_response_sentence(result) -> str:
+    """How an ordinal fit in groups identified its items' latent responses in each group (Wu & Estabrook 2016), read
+    from its own intercept and residual-variance parameters of the items with thresholds ('' for other fits)."""
+    items = {r.variables[0] for r in result.estimates if r.kind == "threshold"}
+    if not result.multigroup or not items:
+        return ""
+
+    def state(kind: str, group: str, value: float) -> str:
+        own = [r for r in result.estimates if r.kind == kind and r.group == group and r.variables[0] in items]
+        if all(not r.free and r.estimate == value for r in own):
+            return f"fixed at {value:g}"
+        return "estimated" if all(r.free for r in own) else "partly estimated"
+
+    patterns: dict[tuple[str, str], list[str]] = {}
+    for g in result.groups:
+        patterns.setdefault((state("intercept", g.label, 0.0), state("residual_variance", g.label, 1.0)),
+                            []).append(g.label)
+    phrases = [f"intercepts {a} and residual variances {b} in {_list(labels) if len(patterns) > 1 else 'every group'}"
+               for (a, b), labels in patterns.items()]
+    return (f"The latent responses behind the ordinal items had {'; '.join(phrases)} (the identification of Wu & "
+            f"Estabrook, 2016).")
+
+
 def methods_paragraph(result) -> str:
     if not result.converged or result.fit is None:
         return "The model did not converge, so no results are reported."
@@ -512,9 +535,8 @@ def methods_paragraph(result) -> str:
         if d.invariant:
             parts.append(f"Held equal across groups: {_list(equality_words(d.invariant))}" + (
                 f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + ".")
-        means = _factor_means_sentence(result)
-        if means:
-            parts.append(means)
+        parts += [sentence for sentence in (_factor_means_sentence(result), _latent_response_sentence(result))
+                  if sentence]
     else:
         parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")

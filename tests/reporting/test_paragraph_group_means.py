@@ -42,3 +42,32 @@ def test_with_equal_intercepts_the_other_groups_means_are_estimated():
 
 def test_a_fit_of_one_group_says_nothing_of_factor_means():
     assert "factor means" not in methods_paragraph(cfa_tool.fit(THREE_FACTORS, holzinger_swineford()))
+
+
+def _ordinal_groups():
+    from tests.reporting.test_paragraph_keying_and_reliability import TRAITS, _answers
+
+    data = _answers()
+    data["site"] = ["east"] * 300 + ["west"] * 300
+    return TRAITS, data
+
+
+def _latent_responses(result, group: str) -> tuple[set, set]:
+    """Whether the items' latent-response intercepts and residual variances are free in ``group`` (own parameters)."""
+    own = [r for r in result.estimates if r.group == group]
+    return ({r.free for r in own if r.kind == "intercept"}, {r.free for r in own if r.kind == "residual_variance"})
+
+
+def test_an_ordinal_fit_in_groups_says_how_its_latent_responses_were_identified():
+    model, data = _ordinal_groups()
+    result = cfa_tool.fit(model + "invariance thresholds\n", data, group="site", ordinal="all")
+    assert _latent_responses(result, "east") == ({False}, {False})
+    assert _latent_responses(result, "west") == ({True}, {True})  # free once thresholds are equal (Wu & Estabrook)
+    text = _flat(methods_paragraph(result))
+    assert ("The latent responses behind the ordinal items had intercepts fixed at 0 and residual variances fixed at 1 "
+            "in east; intercepts estimated and residual variances estimated in west (the identification of Wu & "
+            "Estabrook, 2016).") in text
+    configural = cfa_tool.fit(model, data, group="site", ordinal="all")
+    assert _latent_responses(configural, "west") == ({False}, {False})
+    assert ("intercepts fixed at 0 and residual variances fixed at 1 in every group"
+            in _flat(methods_paragraph(configural)))
