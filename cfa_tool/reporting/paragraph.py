@@ -455,7 +455,7 @@ def _reliability_sentence(result) -> str:
         if not found:
             return ""
         values = _list([f"{unit(r.observed_sum_omega, 2)} for {r.factor}" for r in found])
-        return (f"The reliability of each factor's keyed sum of the answers' codes (the omega of the observed sum, from "
+        return (f"The reliability of the factors' keyed sums of the answers' codes (the omega of the observed sum, from "
                 f"the fitted thresholds, loadings and factor variances; Green & Yang, 2009) was {values}"
                 f"{_keyed_sum_words(found)}.")
     first = [r for r in rows if r.level != "higher-order" and shown(r.omega)]

@@ -132,7 +132,7 @@ def test_the_ordinal_paragraph_gives_the_observed_sum_omega_and_the_declared_ite
     values = ", ".join(f"{unit(r.observed_sum_omega, 2)} for {r.factor}" for r in rows[:2])
     text = _flat(methods_paragraph(result))
     assert "The items q2, q5, and q8 were declared reverse-keyed" in text
-    assert (f"The reliability of each factor's keyed sum of the answers' codes (the omega of the observed sum, from the "
+    assert (f"The reliability of the factors' keyed sums of the answers' codes (the omega of the observed sum, from the "
             f"fitted thresholds, loadings and factor variances; Green & Yang, 2009) was {values}, and "
             f"{unit(rows[2].observed_sum_omega, 2)} for {rows[2].factor}, with q2, q5, and q8 reversed in the sums "
             f"(as declared).") in text
