@@ -101,9 +101,6 @@ class Problem:
     explanation: str
     advice: str
     group: str | None = None
-    # the problem in a methods paragraph's words where its kind's own words would say less: the values read as
-    # missing, with the items holding them (data.non_answers.non_answer_clause); '' for the kind's words
-    words: str = ""
 
     def to_dict(self) -> dict:
         value = None if self.value is None or not np.isfinite(self.value) else float(self.value)
@@ -120,8 +117,6 @@ class Problem:
 
     def phrase(self) -> str:
         """The problem in the words of a methods paragraph, e.g. 'a negative residual variance of x9 (-1.02)'."""
-        if self.words:
-            return self.words + (f" in group {self.group}" if self.group is not None else "")
         names = _names(self.parameters[0]) if self.parameters else ()
         v = f"{self.value:.2f}" if self.value is not None and np.isfinite(self.value) else ""
         K = ProblemKind

@@ -15,7 +15,7 @@ from cfa_tool.data.groups import split_moments
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.matching import answer_range_notes, check_columns, check_declared_ranges
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
-from cfa_tool.data.non_answers import non_answer_caution, non_answer_clause
+from cfa_tool.data.non_answers import non_answer_caution
 from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
@@ -338,10 +338,9 @@ def odd_value_problems(loaded: LoadedData) -> tuple:
     every view (assessment.admissibility.Problem)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    items = loaded.items.names if loaded.items is not None else None
-    marked = non_answer_caution(loaded.non_answers, loaded.source, items)
-    words = non_answer_clause(loaded.non_answers, items)
-    return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked, words=words),) if marked else ()) + tuple(
+    marked = non_answer_caution(loaded.non_answers, loaded.source,
+                                loaded.items.names if loaded.items is not None else None)
+    return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
         Problem(ProblemKind.VALUES_NOT_ANSWERS, (), None, odd.caution(loaded.source), odd.advice())
         for odd in loaded.odd_values)
 
