@@ -310,6 +310,19 @@ def _read_as_missing(data) -> str:
     return "; ".join(clauses)
 
 
+def _lowest_coverage(result) -> float | None:
+    """The smallest share of the rows that answered an item: from the fit's missing-data summary, or, for a fit
+    without one (the steps of an invariance ladder), from the rows answering each item in each group (None when
+    neither is at hand)."""
+    if result.missing_data is not None:
+        coverage = result.missing_data.get("coverage", {})
+        return min(coverage.values()) if coverage else 1.0
+    answered = [g.data.answered for g in result.groups]
+    if not answered or not all(answered) or not result.n_obs:
+        return None
+    return min(sum(counts) for counts in zip(*answered)) / result.n_obs
+
+
 def _sample_phrase(result) -> str:
     data = result.data
     text = f"N = {result.n_obs}"
@@ -317,9 +330,8 @@ def _sample_phrase(result) -> str:
         text += (f" rows meeting {' and '.join(repr(f) for f in data.row_filters)}, of the {data.rows_in_file} in "
                  f"the data file")
     full_information = result.method.full_information
-    if full_information and result.missing_data is not None:
-        coverage = result.missing_data.get("coverage", {})
-        low = min(coverage.values()) if coverage else 1.0
+    low = _lowest_coverage(result) if full_information else None
+    if low is not None:
         floor = math.floor(1000 * low) / 10  # never rounded up: 99.96% is not 'every row'
         text += (f"; every answer of every row was used, including rows with missing answers (each item answered in "
                  f"at least {floor:g}% of the rows)")

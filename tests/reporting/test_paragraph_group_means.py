@@ -71,3 +71,20 @@ def test_an_ordinal_fit_in_groups_says_how_its_latent_responses_were_identified(
     assert _latent_responses(configural, "west") == ({False}, {False})
     assert ("intercepts fixed at 0 and residual variances fixed at 1 in every group"
             in _flat(methods_paragraph(configural)))
+
+
+def test_the_invariance_paragraph_says_rows_with_gaps_were_used_as_the_fit_does():
+    import numpy as np
+
+    from cfa_tool.reporting.paragraph import invariance_paragraph
+    from cfa_tool.workflows.invariance import LEVELS
+
+    data = holzinger_swineford()
+    data.loc[data.index[[3, 40, 77, 150, 210]], "x2"] = np.nan  # x2 answered by 296 of 301 rows: 98.3%, not rounded up
+    ladder = cfa_tool.invariance(THREE_FACTORS, data, "school")
+    assert ladder.steps[0].result.method.full_information
+    fitted = cfa_tool.fit(THREE_FACTORS, data, group="school")
+    assert min(fitted.missing_data["coverage"].values()) == 296 / 301
+    phrase = ("every answer of every row was used, including rows with missing answers (each item answered in at "
+              "least 98.3% of the rows)")
+    assert phrase in _flat(methods_paragraph(fitted)) and phrase in _flat(invariance_paragraph(ladder, LEVELS))
