@@ -195,8 +195,8 @@ def _brief(names: list[str], noun: str) -> str:
 def non_answer_clause(found: tuple[NonAnswer, ...], items=None) -> str:
     """The values of the model's ``items`` (None: of every column in ``found``) that the file marks as no answer and
     that were read as missing, in a clause of a methods paragraph: each value (with its label) and the items holding
-    it, briefly ('values the data file marks as no answer were treated as missing: 8 'refused' in q1, q2, q3 and 2
-    more items; 'don't know' in q4'); '' when there are none."""
+    it, briefly: values the data file marks as no answer were treated as missing (8 'refused' in q1, q2, q3 and 2
+    more items; 'don't know' in q4); '' when there are none."""
     mine = [f for f in found if items is None or f.column in set(items)]
     if not mine:
         return ""

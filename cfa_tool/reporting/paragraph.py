@@ -4,9 +4,11 @@ no leading zero for values that cannot exceed 1).
 
 The paragraph describes exactly the model fitted: every departure from simple structure
 (cross-loadings, residual covariances, uncorrelated factors, higher-order factors,
-equal, fixed and bounded parameters), how each factor got its scale, the estimator and
-test, how missing answers were handled (with counts), and the groups.  It reads all of
-that from the result's model description, never from a generic template.
+equal, fixed and bounded parameters), the items declared reverse-keyed, how each factor got
+its scale, the estimator and test, how missing answers were handled (with counts, and the
+values read as no answer), the groups with their sizes and where factor means were
+estimated, and the reliability of each factor's keyed sum that the fit computed.  It reads
+all of that from the result's typed fields, never from a generic template.
 """
 
 from __future__ import annotations
@@ -480,7 +482,7 @@ def _reliability_sentence(result) -> str:
                      + _list([f"{unit(r.omega_hierarchical, 2)} for {r.factor}" for r in higher]))
     if not parts:
         return ""
-    return (f"For the reliability of each factor's keyed sum score, {'; '.join(parts)}"
+    return (f"For the reliability of the factors' keyed sum scores, {'; '.join(parts)}"
             f"{_keyed_sum_words(first + higher)}.")
 
 

@@ -101,7 +101,7 @@ def test_continuous_omega_is_the_fits_own_and_agrees_with_the_formula():
     # recalled from memory, not a cited table: semTools' reliability() on this model gives omega near .61, .88, .69
     assert [round(rows[f].omega, 1) for f in ("visual", "textual", "speed")] == [0.6, 0.9, 0.7]
     text = _flat(methods_paragraph(result))
-    assert (f"For the reliability of each factor's keyed sum score, omega (McDonald, 1999) was "
+    assert (f"For the reliability of the factors' keyed sum scores, omega (McDonald, 1999) was "
             f"{unit(rows['visual'].omega, 2)} for visual, {unit(rows['textual'].omega, 2)} for textual, and "
             f"{unit(rows['speed'].omega, 2)} for speed.") in text
 
