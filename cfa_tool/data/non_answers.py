@@ -181,6 +181,34 @@ def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = ()) ->
     return out, tuple(found)
 
 
+#: values and items a clause for a methods paragraph names before 'and N more'
+BRIEF = 3
+
+
+def _brief(names: list[str], noun: str) -> str:
+    """'a, b and c', or 'a, b, c and 4 more NOUN' past :data:`BRIEF` names."""
+    shown = names[:BRIEF]
+    if len(names) > BRIEF:
+        return f"{', '.join(shown)} and {len(names) - BRIEF} more {noun}"
+    return shown[0] if len(shown) == 1 else f"{', '.join(shown[:-1])} and {shown[-1]}"
+
+
+def non_answer_clause(found: tuple[NonAnswer, ...], items=None) -> str:
+    """The values of the model's ``items`` (None: of every column in ``found``) that the file marks as no answer and
+    that were read as missing, in a clause of a methods paragraph: each value (with its label) and the items holding
+    it, briefly: values the data file marks as no answer were treated as missing (8 'refused' in q1, q2, q3 and 2
+    more items; 'don't know' in q4); '' when there are none."""
+    mine = [f for f in found if items is None or f.column in set(items)]
+    if not mine:
+        return ""
+    columns: dict[str, list[str]] = {}
+    for f in mine:
+        columns.setdefault(f.shown(), []).append(printable(f.column))
+    values = [f"{value} in {_brief(list(dict.fromkeys(names)), 'items')}" for value, names in columns.items()]
+    shown = "; ".join(values[:BRIEF]) + (f"; and {len(values) - BRIEF} more values" if len(values) > BRIEF else "")
+    return f"values the data file marks as no answer were treated as missing ({shown})"
+
+
 def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items=None) -> tuple[str, str] | None:
     """The caution (one line) and its advice naming the values of the model's ``items`` (None: of every column
     in ``found``) that the file marks as no answer and that were read as missing: each code with its label, the

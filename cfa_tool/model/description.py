@@ -64,9 +64,13 @@ class ModelDescription:
     # each group's scales (group label, scales), when some factor is scaled differently in some group ('in group'
     # statements); empty when every group is scaled as ``scales`` says
     group_scales: tuple[tuple[str, tuple[FactorScale, ...]], ...] = ()
+    # the items each 'reversed' statement declares reverse-keyed, with the lowest and highest answer of their scale
+    reverse_keyed: tuple[tuple[tuple[str, ...], float, float], ...] = ()
 
     def to_dict(self) -> dict:
-        return {
+        keyed = {"reverse_keyed": [{"items": list(items), "lowest": lo, "highest": hi}
+                                   for items, lo, hi in self.reverse_keyed]} if self.reverse_keyed else {}
+        return keyed | {
             "exploratory_blocks": [{"factors": list(f), "items": list(i), "rotation": r} for f, i, r in self.exploratory],
             "first_order_factors": list(self.first_order),
             "higher_order_factors": [{"factor": f, "explains": list(lower)} for f, lower in self.higher_order],
@@ -186,6 +190,7 @@ def describe(spec: Spec, table: ParameterTable) -> ModelDescription:
         noninvariant=tuple(_ref(r) for r in spec.noninvariant),
         method_factors=tuple(n.text for n in spec.method),
         exploratory=tuple((b.factor_names, b.item_names, b.rotation.text) for b in spec.exploratory),
+        reverse_keyed=tuple((tuple(i.text for i in k.items), k.minimum, k.maximum) for k in spec.reversed),
     )
 
 

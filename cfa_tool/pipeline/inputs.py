@@ -319,12 +319,21 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     with odd_values_named(loaded):
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                        ordinal_estimator, design), ids_by_row_number(ids, frame))
-    result = with_odd_values(result, loaded)
-    codes = missing_codes_option(missing_codes)
-    if codes:  # kept with the fit: scores of other data with it read them so too
-        result = replace(result, data=replace(result.data, missing_codes=codes))
+    result = with_missing_reading(with_odd_values(result, loaded), loaded, missing_codes)
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
+
+
+def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
+    """``result`` (a fit of rows) with what was read as no answer kept in its data: the ``missing_codes`` given
+    (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
+    no answer (``loaded.non_answers``), which the methods paragraph names."""
+    codes = missing_codes_option(missing_codes)
+    items = set(result.observed)
+    marked = tuple(f for f in loaded.non_answers if f.column in items)
+    if not codes and not marked:
+        return result
+    return replace(result, data=replace(result.data, missing_codes=codes, non_answers=marked))
 
 
 def odd_value_problems(loaded: LoadedData) -> tuple:

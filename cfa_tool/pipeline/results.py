@@ -173,6 +173,9 @@ class DataSummary:
     not_given: tuple = ()
     # values read as no answer (--missing-codes), which scoring other data with this fit reads so too
     missing_codes: tuple[float, ...] = ()
+    # values of the model's items that the data file itself marks as no answer, read as missing
+    # (data.non_answers.NonAnswer): the methods paragraph names them
+    non_answers: tuple = ()
     # summary statistics: which matrix was analysed (data.summary_stats.AnalysedMatrix); None for rows of answers
     analysed: object | None = None
     # per item, the lowest and highest answer of the rows analysed (empty without rows), so that scoring other data

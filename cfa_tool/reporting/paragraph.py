@@ -4,9 +4,11 @@ no leading zero for values that cannot exceed 1).
 
 The paragraph describes exactly the model fitted: every departure from simple structure
 (cross-loadings, residual covariances, uncorrelated factors, higher-order factors,
-equal, fixed and bounded parameters), how each factor got its scale, the estimator and
-test, how missing answers were handled (with counts), and the groups.  It reads all of
-that from the result's model description, never from a generic template.
+equal, fixed and bounded parameters), the items declared reverse-keyed, how each factor got
+its scale, the estimator and test, how missing answers were handled (with counts, and the
+values read as no answer), the groups with their sizes and where factor means were
+estimated, and the reliability of each factor's keyed sum that the fit computed.  It reads
+all of that from the result's typed fields, never from a generic template.
 """
 
 from __future__ import annotations
@@ -16,6 +18,8 @@ import math
 from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
+from cfa_tool.assessment.reliability import Keying
+from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
@@ -294,6 +298,33 @@ def _pairs_with_gaps(result) -> bool:
     return pairs is not None and pairs[0] < result.n_obs
 
 
+def _read_as_missing(data) -> str:
+    """What was read as no answer, in clauses of the rows' phrase: the codes the user declared (--missing-codes) and
+    the values the data file itself marks as no answer, with their items ('' when neither)."""
+    clauses = []
+    codes = [f"{c:g}" for c in getattr(data, "missing_codes", ())]
+    if codes:
+        clauses.append(f"the code{'s' if len(codes) > 1 else ''} {_list(codes)}, declared to mean no answer, "
+                       f"{'were' if len(codes) > 1 else 'was'} treated as missing")
+    marked = non_answer_clause(getattr(data, "non_answers", ()))
+    if marked:
+        clauses.append(marked)
+    return "; ".join(clauses)
+
+
+def _lowest_coverage(result) -> float | None:
+    """The smallest share of the rows that answered an item: from the fit's missing-data summary, or, for a fit
+    without one (the steps of an invariance ladder), from the rows answering each item in each group (None when
+    neither is at hand)."""
+    if result.missing_data is not None:
+        coverage = result.missing_data.get("coverage", {})
+        return min(coverage.values()) if coverage else 1.0
+    answered = [g.data.answered for g in result.groups]
+    if not answered or not all(answered) or not result.n_obs:
+        return None
+    return min(sum(counts) for counts in zip(*answered)) / result.n_obs
+
+
 def _sample_phrase(result) -> str:
     data = result.data
     text = f"N = {result.n_obs}"
@@ -301,9 +332,8 @@ def _sample_phrase(result) -> str:
         text += (f" rows meeting {' and '.join(repr(f) for f in data.row_filters)}, of the {data.rows_in_file} in "
                  f"the data file")
     full_information = result.method.full_information
-    if full_information and result.missing_data is not None:
-        coverage = result.missing_data.get("coverage", {})
-        low = min(coverage.values()) if coverage else 1.0
+    low = _lowest_coverage(result) if full_information else None
+    if low is not None:
         floor = math.floor(1000 * low) / 10  # never rounded up: 99.96% is not 'every row'
         text += (f"; every answer of every row was used, including rows with missing answers (each item answered in "
                  f"at least {floor:g}% of the rows)")
@@ -311,9 +341,9 @@ def _sample_phrase(result) -> str:
     if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
                  f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair{_PAIRWISE_ASSUMPTION}")
-    marked = next((p for p in getattr(result, "problems", ()) if p.kind is ProblemKind.VALUES_READ_AS_MISSING), None)
-    if marked is not None:
-        text += f"; {marked.phrase()}"  # a clause: the values were treated as missing
+    read = _read_as_missing(data)
+    if read:
+        text += f"; {read}"
     if data.rows_dropped:
         if full_information or result.method.missing is MissingData.PAIRWISE:
             text += f"; {data.rows_dropped} of {data.rows_read} rows answered no model variable and were left out"
@@ -380,17 +410,137 @@ def _weak_factor_sentence(result, subject: str) -> str:
     return " ".join(parts)
 
 
+def _reverse_keyed_sentence(d) -> str:
+    """The items a 'reversed' statement declares reverse-keyed, with their answer scale ('' without one)."""
+    parts = []
+    for items, lowest, highest in d.reverse_keyed:
+        many = len(items) > 1
+        parts.append(f"the item{'s' if many else ''} {_list(list(items))} {'were' if many else 'was'} declared "
+                     f"reverse-keyed (worded against {'their factors' if many else 'its factor'}; answers from "
+                     f"{lowest:g} to {highest:g})")
+    return _capital("; ".join(parts)) + "." if parts else ""
+
+
+def _scale_sentences(d) -> list[str]:
+    """The items declared reverse-keyed, then how each factor got its scale (what the declaration changed in it)."""
+    found = [_reverse_keyed_sentence(d), _scale_sentence(d) if d.scales else "", _method_scale_sentence(d)]
+    return [sentence for sentence in found if sentence]
+
+
+def _method_scale_sentence(d) -> str:
+    """How a method factor scaled by a marker got its direction when some of its items are declared reverse-keyed:
+    a 'reversed' statement does not orient method factors, so the marker is the method factor's first item at +1
+    and the factor points the way of its items' raw answers ('' when no method factor is in that case)."""
+    keyed = {x for items, _, _ in d.reverse_keyed for x in items}
+    clauses = [f"the loading of {s.factor}'s first item, {s.marker}, was fixed to +1, so that {s.factor} points the "
+               f"way of its items' raw answers" for s in d.scales
+               if s.factor in set(d.method_factors) and s.method == "marker" and s.marker in keyed]
+    if not clauses:
+        return ""
+    return f"The reverse-keyed declaration does not orient method factors: {'; '.join(clauses)}."
+
+
+def _keyed_sum_words(rows) -> str:
+    """Which items the keyed sums reverse and why (the reliability rows' own keys), as a closing clause."""
+    reversed_items = list(dict.fromkeys(x for r in rows for x in r.reversed))
+    if not reversed_items:
+        return ""
+    declared = all(r.keying is Keying.DECLARED for r in rows)
+    why = ("as declared" if declared else
+           f"as {'their loadings run' if len(reversed_items) > 1 else 'its loading runs'} against the other items of "
+           f"{'their factors' if len(reversed_items) > 1 else 'its factor'}")
+    return f", with {_list(reversed_items)} reversed in the sums ({why})"
+
+
+def _reliability_sentence(result) -> str:
+    """The reliability of each factor's keyed sum score as the fit computed it (assessment.reliability): omega
+    (McDonald 1999), for a higher-order factor omega hierarchical (Zinbarg, Revelle, Yovel & Li 2005); for ordinal
+    items the omega of the observed sum of the answers' codes (Green & Yang 2009).  A fit of one group only: with
+    groups the coefficients differ by group and stay in the report's tables.  '' when none was computed."""
+    if result.multigroup or not result.groups:
+        return ""
+    rows = list(result.groups[0].reliability)
+
+    def shown(value) -> bool:
+        return value is not None and math.isfinite(value)
+
+    if result.method.ordinal:
+        found = [r for r in rows if shown(r.observed_sum_omega)]
+        if not found:
+            return ""
+        values = _list([f"{unit(r.observed_sum_omega, 2)} for {r.factor}" for r in found])
+        return (f"The reliability of the factors' keyed sums of the answers' codes (the omega of the observed sum, from "
+                f"the fitted thresholds, loadings and factor variances; Green & Yang, 2009) was {values}"
+                f"{_keyed_sum_words(found)}.")
+    first = [r for r in rows if r.level != "higher-order" and shown(r.omega)]
+    higher = [r for r in rows if r.level == "higher-order" and shown(r.omega_hierarchical)]
+    parts = []
+    if first:
+        parts.append(f"omega (McDonald, 1999) was {_list([f'{unit(r.omega, 2)} for {r.factor}' for r in first])}")
+    if higher:
+        parts.append("omega hierarchical (Zinbarg, Revelle, Yovel & Li, 2005) was "
+                     + _list([f"{unit(r.omega_hierarchical, 2)} for {r.factor}" for r in higher]))
+    if not parts:
+        return ""
+    return (f"For the reliability of the factors' keyed sum scores, {'; '.join(parts)}"
+            f"{_keyed_sum_words(first + higher)}.")
+
+
+def _factor_means_sentence(result) -> str:
+    """Where a fit in groups estimated its factor means and where it fixed them at zero (its own mean parameters):
+    with intercepts held equal the means of every group but the reference are estimated; without, every group's
+    are zero ('' for a fit of one group, or one without mean parameters)."""
+    means = [r for r in result.estimates if r.kind == "mean"]
+    if not result.multigroup or not means:
+        return ""
+    labels = [g.label for g in result.groups]
+    at_zero = [g for g in labels if all(not r.free and r.estimate == 0.0 for r in means if r.group == g)]
+    estimated = {g: [r.variables[0] for r in means if r.group == g and r.free] for g in labels}
+    every = {r.variables[0] for r in means}
+    if len(at_zero) == len(labels):
+        return "The factor means were fixed at zero in every group."
+    parts = [f"fixed at zero in {_list(at_zero)}"] if at_zero else []
+    whole = [g for g in labels if estimated[g] and set(estimated[g]) == every]
+    if whole:
+        parts.append(f"estimated in {_list(whole)}")
+    parts += [f"estimated for {_list(estimated[g])} in {g}" for g in labels if estimated[g] and g not in whole]
+    return f"The factor means were {_list(parts)}." if parts else ""
+
+
+def _latent_response_sentence(result) -> str:
+    """How an ordinal fit in groups identified its items' latent responses in each group (Wu & Estabrook 2016), read
+    from its own intercept and residual-variance parameters of the items with thresholds ('' for other fits)."""
+    items = {r.variables[0] for r in result.estimates if r.kind == "threshold"}
+    if not result.multigroup or not items:
+        return ""
+
+    def state(kind: str, group: str, value: float) -> str:
+        own = [r for r in result.estimates if r.kind == kind and r.group == group and r.variables[0] in items]
+        if all(not r.free and r.estimate == value for r in own):
+            return f"fixed at {value:g}"
+        return "estimated" if all(r.free for r in own) else "partly estimated"
+
+    patterns: dict[tuple[str, str], list[str]] = {}
+    for g in result.groups:
+        patterns.setdefault((state("intercept", g.label, 0.0), state("residual_variance", g.label, 1.0)),
+                            []).append(g.label)
+    phrases = [f"intercepts {a} and residual variances {b} in {_list(labels) if len(patterns) > 1 else 'every group'}"
+               for (a, b), labels in patterns.items()]
+    return (f"The latent responses behind the ordinal items had {'; '.join(phrases)} (the identification of Wu & "
+            f"Estabrook, 2016).")
+
+
 def methods_paragraph(result) -> str:
     if not result.converged or result.fit is None:
         return "The model did not converge, so no results are reported."
     d = result.description
-    groups = f" in {len(result.groups)} groups defined by {result.group_column}" if result.multigroup else ""
+    groups = (f" in {_count(len(result.groups), 'group')} defined by {result.group_column} ("
+              + "; ".join(f"{g.label}, n = {g.data.n_obs}" for g in result.groups) + ")" if result.multigroup else "")
     parts = []
     if d is not None:
         parts.append(f"A confirmatory factor analysis with {_structure(result, d)} was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
-        if d.scales:
-            parts.append(_scale_sentence(d))
+        parts += _scale_sentences(d)
         if d.exploratory:
             parts.append(_block_sentences(result, d))
         departures = _departures(d)
@@ -399,6 +549,8 @@ def methods_paragraph(result) -> str:
         if d.invariant:
             parts.append(f"Held equal across groups: {_list(equality_words(d.invariant))}" + (
                 f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + ".")
+        parts += [sentence for sentence in (_factor_means_sentence(result), _latent_response_sentence(result))
+                  if sentence]
     else:
         parts.append(f"A confirmatory factor analysis with {len(result.observed)} indicators was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
@@ -460,6 +612,9 @@ def methods_paragraph(result) -> str:
                          f"{unit(corr[0], 2)}.")
         else:
             parts.append(f"Factor correlations{which} ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}.")
+    reliability = _reliability_sentence(result)
+    if reliability:
+        parts.append(reliability)
     if result.fit.df > 0 and not inadmissible:
         parts.append("Fit was judged against conventional guide values (e.g., CFI \u2265 .95, RMSEA \u2264 .06, "
                      "SRMR \u2264 .08; Hu & Bentler, 1999), which are conventions rather than strict criteria.")
@@ -476,9 +631,7 @@ def _model_sentences(name: str, result) -> str:
     d = result.description
     if d is None:
         return f"{name} had {_count(len(result.observed), 'indicator')}."
-    parts = [f"{name} had {_structure(result, d).rstrip(',')}."]
-    if d.scales:
-        parts.append(_scale_sentence(d))
+    parts = [f"{name} had {_structure(result, d).rstrip(',')}."] + _scale_sentences(d)
     departures = _departures(d)
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))
@@ -519,7 +672,8 @@ def _comparison_rows(comparison) -> str:
                if dropped else "")
     left = (f"; {dropped} of {n + dropped} rows answered none of some model's variables and were left out"
             if dropped and comparison.missing is not MissingData.LISTWISE else "")
-    return f"N = {n}" + (f"; {how}" if how else "") + left
+    read = _read_as_missing(comparison.results[0].data)
+    return f"N = {n}" + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
 
 
 def comparison_paragraph(comparison) -> str:
@@ -697,8 +851,7 @@ def invariance_paragraph(result, levels) -> str:
         parts.append(f"The configural model had {_structure(first, d).rstrip(',')}, with the same pattern in every "
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
                      f"{result.groups[0]} were fixed at zero.")
-        if d.scales:
-            parts.append(_scale_sentence(d))
+        parts += _scale_sentences(d)
         departures = _departures(d)
         if departures:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))

@@ -10,7 +10,7 @@ import pandas as pd
 
 from cfa_tool.pipeline.inputs import (_described, choose_missing_handling, design_test, few_category_notes, load_spec, make_options, moments_for,
                                       of_summary_statistics,
-                                      odd_value_problems, odd_values_named,
+                                      odd_value_problems, odd_values_named, with_missing_reading,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_row_options, summary_source, with_design)
 from cfa_tool.data.labels import label_notes
@@ -163,9 +163,11 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             complete, design_notes = check_design(complete, design, tuple(used), group, source)
             notes = list(notes) + design_notes
         if ordinal_items:
-            return _compare_ordinal(specs, names, complete, source, group, reference_group,
-                                    replace(fit_options, missing=None if pairwise else MissingData.LISTWISE), ordinal_items,
-                                    ordinal_estimator, dropped, design, pairwise, notes, odd_value_problems(loaded))
+            found = _compare_ordinal(specs, names, complete, source, group, reference_group,
+                                     replace(fit_options, missing=None if pairwise else MissingData.LISTWISE),
+                                     ordinal_items, ordinal_estimator, dropped, design, pairwise, notes,
+                                     odd_value_problems(loaded))
+            return replace(found, results=tuple(with_missing_reading(r, loaded, missing_codes) for r in found.results))
         results = []
         data_groups = []
         for spec, name in zip(specs, names):
@@ -173,7 +175,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             data_groups.append(groups)
             with estimation_of(f"model {name}"):
                 result = fit_moments(spec, groups, fit_options, group_column=group)
-            result = _described(result, spec, tuple(label for label, _ in groups) if group is not None else None)
+            result = with_missing_reading(_described(result, spec, tuple(label for label, _ in groups)
+                                                     if group is not None else None), loaded, missing_codes)
             results.append(with_design(result, design_summary(complete, design, [m for _, m in groups]))
                            if design is not None else result)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)

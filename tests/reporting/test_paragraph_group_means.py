@@ -1,0 +1,90 @@
+"""The methods paragraph of a fit in groups names each group with its size and says where the factor means were
+estimated and where they were fixed at zero, as the fit's own mean parameters say: without equal intercepts every
+group's means are zero; with them the reference group's are zero and the others' estimated.  Group sizes of
+Holzinger & Swineford (1939): 156 pupils of the Pasteur school, 145 of Grant-White."""
+
+from __future__ import annotations
+
+import cfa_tool
+from cfa_tool.reporting.paragraph import methods_paragraph
+from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+
+def _flat(text: str) -> str:
+    return " ".join(text.split())
+
+
+def _means(result) -> dict[str, set[bool]]:
+    """Per group, whether its factor means are free (the fit's own parameters)."""
+    out: dict[str, set[bool]] = {}
+    for r in result.estimates:
+        if r.kind == "mean":
+            out.setdefault(r.group, set()).add(r.free)
+    return out
+
+
+def test_without_equal_intercepts_every_groups_means_are_zero():
+    result = cfa_tool.fit(THREE_FACTORS + "invariance metric\n", holzinger_swineford(), group="school")
+    assert _means(result) == {"Grant-White": {False}, "Pasteur": {False}}
+    assert [(g.label, g.data.n_obs) for g in result.groups] == [("Grant-White", 145), ("Pasteur", 156)]
+    text = _flat(methods_paragraph(result))
+    assert "estimated in two groups defined by school (Grant-White, n = 145; Pasteur, n = 156) by" in text
+    assert "The factor means were fixed at zero in every group." in text
+
+
+def test_with_equal_intercepts_the_other_groups_means_are_estimated():
+    result = cfa_tool.fit(THREE_FACTORS + "invariance scalar\n", holzinger_swineford(), group="school",
+                          reference_group="Pasteur")
+    assert _means(result) == {"Pasteur": {False}, "Grant-White": {True}}
+    text = _flat(methods_paragraph(result))
+    assert "The factor means were fixed at zero in Pasteur and estimated in Grant-White." in text
+
+
+def test_a_fit_of_one_group_says_nothing_of_factor_means():
+    assert "factor means" not in methods_paragraph(cfa_tool.fit(THREE_FACTORS, holzinger_swineford()))
+
+
+def _ordinal_groups():
+    from tests.reporting.test_paragraph_keying_and_reliability import TRAITS, _answers
+
+    data = _answers()
+    data["site"] = ["east"] * 300 + ["west"] * 300
+    return TRAITS, data
+
+
+def _latent_responses(result, group: str) -> tuple[set, set]:
+    """Whether the items' latent-response intercepts and residual variances are free in ``group`` (own parameters)."""
+    own = [r for r in result.estimates if r.group == group]
+    return ({r.free for r in own if r.kind == "intercept"}, {r.free for r in own if r.kind == "residual_variance"})
+
+
+def test_an_ordinal_fit_in_groups_says_how_its_latent_responses_were_identified():
+    model, data = _ordinal_groups()
+    result = cfa_tool.fit(model + "invariance thresholds\n", data, group="site", ordinal="all")
+    assert _latent_responses(result, "east") == ({False}, {False})
+    assert _latent_responses(result, "west") == ({True}, {True})  # free once thresholds are equal (Wu & Estabrook)
+    text = _flat(methods_paragraph(result))
+    assert ("The latent responses behind the ordinal items had intercepts fixed at 0 and residual variances fixed at 1 "
+            "in east; intercepts estimated and residual variances estimated in west (the identification of Wu & "
+            "Estabrook, 2016).") in text
+    configural = cfa_tool.fit(model, data, group="site", ordinal="all")
+    assert _latent_responses(configural, "west") == ({False}, {False})
+    assert ("intercepts fixed at 0 and residual variances fixed at 1 in every group"
+            in _flat(methods_paragraph(configural)))
+
+
+def test_the_invariance_paragraph_says_rows_with_gaps_were_used_as_the_fit_does():
+    import numpy as np
+
+    from cfa_tool.reporting.paragraph import invariance_paragraph
+    from cfa_tool.workflows.invariance import LEVELS
+
+    data = holzinger_swineford()
+    data.loc[data.index[[3, 40, 77, 150, 210]], "x2"] = np.nan  # x2 answered by 296 of 301 rows: 98.3%, not rounded up
+    ladder = cfa_tool.invariance(THREE_FACTORS, data, "school")
+    assert ladder.steps[0].result.method.full_information
+    fitted = cfa_tool.fit(THREE_FACTORS, data, group="school")
+    assert min(fitted.missing_data["coverage"].values()) == 296 / 301
+    phrase = ("every answer of every row was used, including rows with missing answers (each item answered in at "
+              "least 98.3% of the rows)")
+    assert phrase in _flat(methods_paragraph(fitted)) and phrase in _flat(invariance_paragraph(ladder, LEVELS))
