@@ -435,7 +435,8 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
     result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
     if group is not None and result.data.rows_read != len(loaded.frame):  # rows without a group label count as read
         result = replace(result, data=replace(result.data, rows_read=len(loaded.frame),
-                                              rows_dropped=len(loaded.frame) - result.data.n_obs))
+                                              rows_dropped=len(loaded.frame) - result.data.n_obs,
+                                              without_group=len(loaded.frame) - result.data.rows_read))
     if not loaded.row_filters:
         return result
     return replace(result, data=replace(result.data, row_filters=loaded.row_filters,

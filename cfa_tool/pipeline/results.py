@@ -181,6 +181,8 @@ class DataSummary:
     # per item, the lowest and highest answer of the rows analysed (empty without rows), so that scoring other data
     # with this fit can name answers outside them (a file coded 0-4 scored with a fit of answers coded 1-5)
     ranges: tuple[tuple[float, float], ...] = ()
+    # rows left out for having no value in the group column (counted in rows_dropped, for another reason than gaps)
+    without_group: int = 0
 
     @property
     def pair_range(self) -> tuple[int, int] | None:
@@ -221,6 +223,8 @@ class DataSummary:
             out["missing_codes"] = list(self.missing_codes)
         if self.analysed is not None:
             out["matrix_analysed"] = self.analysed.name.lower()
+        if self.without_group:
+            out["rows_without_group"] = self.without_group
         if self.ranges:
             out["answer_ranges"] = {name: list(r) for name, r in zip(self.variables, self.ranges)}
         return clean(out)

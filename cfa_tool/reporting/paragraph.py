@@ -344,12 +344,23 @@ def _sample_phrase(result) -> str:
     read = _read_as_missing(data)
     if read:
         text += f"; {read}"
-    if data.rows_dropped:
+    without_group = getattr(data, "without_group", 0)
+    dropped = data.rows_dropped - without_group
+    if dropped:
         if full_information or result.method.missing is MissingData.PAIRWISE:
-            text += f"; {data.rows_dropped} of {data.rows_read} rows answered no model variable and were left out"
+            text += f"; {dropped} of {data.rows_read} rows answered no model variable and were left out"
         else:
-            text += f"; {data.rows_dropped} of {data.rows_read} rows with missing answers were excluded listwise"
+            text += f"; {dropped} of {data.rows_read} rows with missing answers were excluded listwise"
+    if without_group:
+        text += _without_group_clause(without_group, data.rows_read, result.group_column)
     return text
+
+
+def _without_group_clause(count: int, read: int, column: str | None) -> str:
+    """'; 48 of 480 rows had no value in the group column (district) and were left out'."""
+    where = f" ({column})" if column else ""
+    return (f"; {count} of {read} row{'s' if read != 1 else ''} had no value in the group column{where} and "
+            f"{'was' if count == 1 else 'were'} left out")
 
 
 def _matrix_sentence(result, subject: str = "The model was") -> str:
@@ -670,8 +681,14 @@ def _comparison_rows(comparison) -> str:
     else:
         how = (f"{dropped} of {n + dropped} rows with a missing answer on some model's variables were excluded listwise"
                if dropped else "")
-    left = (f"; {dropped} of {n + dropped} rows answered none of some model's variables and were left out"
+    without = getattr(comparison, "without_group", 0)
+    read_rows = n + dropped + without
+    if how.startswith(f"{dropped} of {n + dropped} rows"):
+        how = how.replace(f"{dropped} of {n + dropped} rows", f"{dropped} of {read_rows} rows", 1)
+    left = (f"; {dropped} of {read_rows} rows answered none of some model's variables and were left out"
             if dropped and comparison.missing is not MissingData.LISTWISE else "")
+    if without:
+        left += _without_group_clause(without, read_rows, comparison.results[0].group_column)
     read = _read_as_missing(comparison.results[0].data)
     return f"N = {n}" + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
 

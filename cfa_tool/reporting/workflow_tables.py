@@ -202,7 +202,9 @@ def comparison_report(comparison) -> Report:
     pairwise = comparison.missing is MissingData.PAIRWISE
     if full_information or pairwise:
         left = (f"{comparison.rows_dropped} rows answering none of some model's variables left out" if
-                comparison.rows_dropped else "no row left out")
+                comparison.rows_dropped else "no row left out for missing answers")
+        if comparison.without_group:
+            left += f"; {comparison.without_group} rows without a value in the group column left out"
         how = ("every answer used: each correlation from the rows that answered both items" if pairwise else
                "by full-information ML, rows with missing answers included")
         rows_line = f"All models fitted to the same {comparison.n_obs} rows, {how} ({left})."

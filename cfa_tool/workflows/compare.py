@@ -8,7 +8,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from cfa_tool.pipeline.inputs import (_described, choose_missing_handling, design_test, few_category_notes, load_spec, make_options, moments_for,
+from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missing_handling, design_test, few_category_notes, load_spec, make_options, moments_for,
                                       of_summary_statistics,
                                       odd_value_problems, odd_values_named, with_missing_reading,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
@@ -53,6 +53,7 @@ class Comparison(Presentable):
     missing: MissingData = MissingData.LISTWISE
     notes: tuple[str, ...] = ()
     problems: tuple = ()  # of the data: values that look like no answers (assessment.admissibility.Problem)
+    without_group: int = 0  # rows left out for having no value in the group column (not in rows_dropped)
 
     @property
     def change_guides_apply(self) -> bool:
@@ -66,6 +67,7 @@ class Comparison(Presentable):
             "data_problems": [p.to_dict() for p in self.problems],
             "n_obs": self.n_obs,
             "rows_dropped": self.rows_dropped,
+            "rows_without_group": self.without_group,
             "incomplete_rows": self.missing.value,
             "notes": list(self.notes),
             "group_column": self.results[0].group_column if self.results[0].multigroup else None,
@@ -135,8 +137,12 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     for spec in specs[1:]:
         check_columns(spec, list(frame.columns), source, loaded.sheet_hint())
     used = sorted({x for spec in specs for x in spec.observed_names})
-    if group is not None and group in frame.columns:
-        frame = frame.loc[frame[group].notna()]
+    without_group = 0
+    if group is not None and group in frame.columns:  # rows without a group value: left out, and said
+        has_group = frame[group].notna().to_numpy()
+        without_group = int((~has_group).sum())
+        frame = frame.loc[has_group]
+        notes = list(notes) + _no_group_notes(without_group, group)
     # values that look like no answers in any model's items, among the rows compared: first in the report, and
     # named first when a fit fails
     loaded = replace(loaded, odd_values=odd_values(frame, used, row_numbers(frame)))
@@ -156,7 +162,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             complete = frame.loc[np.logical_and.reduce(answers)]
         else:
             complete = frame.dropna(subset=used)
-        dropped = len(loaded.frame) - len(complete)  # rows with missing answers (or none) or without a group
+        dropped = len(loaded.frame) - len(complete) - without_group  # rows with missing answers (or none)
         if group is not None:
             notes = list(notes) + label_notes(complete, group)
         if design is not None:
@@ -167,7 +173,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                      replace(fit_options, missing=None if pairwise else MissingData.LISTWISE),
                                      ordinal_items, ordinal_estimator, dropped, design, pairwise, notes,
                                      odd_value_problems(loaded))
-            return replace(found, results=tuple(with_missing_reading(r, loaded, missing_codes) for r in found.results))
+            return replace(found, results=tuple(with_missing_reading(r, loaded, missing_codes) for r in found.results),
+                           without_group=without_group)
         results = []
         data_groups = []
         for spec, name in zip(specs, names):
@@ -181,7 +188,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                            if design is not None else result)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
         return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
-                          fit_options.missing, tuple(notes), odd_value_problems(loaded))
+                          fit_options.missing, tuple(notes), odd_value_problems(loaded), without_group=without_group)
 
 
 def _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items, method,
