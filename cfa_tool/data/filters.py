@@ -34,6 +34,16 @@ class RowFilter:
     def __str__(self) -> str:
         return self.text
 
+    def in_words(self) -> str:
+        """The filter as a methods section words it: 'district was north', 'age was at least 18'."""
+        value = f"{self.value:g}" if isinstance(self.value, float) else str(self.value)
+        return f"{self.column} {_OPERATOR_WORDS[self.operator]} {value}"
+
+
+#: each operator of a row filter in the words of a methods section
+_OPERATOR_WORDS = {"=": "was", "!=": "was not", "<": "was below", "<=": "was at most", ">": "was above",
+                   ">=": "was at least"}
+
 
 def parse_filter(text: str) -> RowFilter:
     if not isinstance(text, str):

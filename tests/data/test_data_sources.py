@@ -555,7 +555,12 @@ def test_row_filters_are_stated_where_the_rows_are(hs_data, tmp_path):
     result = cfa_tool.fit(THREE_FACTORS, path, keep=["school = Pasteur"])
     assert rows_phrase(result.data) == ("156 rows analysed of 156 kept by the row filter 'school = Pasteur' "
                                         "(301 rows in the file)")
-    assert "N = 156 rows meeting 'school = Pasteur', of the 301 in the data file" in methods_paragraph(result)
+    # in a methods section's words, not the option's syntax (a new-user trial found command syntax in the paragraph)
+    assert "N = 156 of the 301 rows in the data file, those where school was Pasteur" in methods_paragraph(result)
+    two = cfa_tool.fit(THREE_FACTORS, path, keep=['"school" != Pasteur', "x1 >= 4"])
+    kept = int(((hs_data["school"] != "Pasteur") & (hs_data["x1"] >= 4)).sum())
+    assert (f"N = {kept} of the 301 rows in the data file, those where school was not Pasteur and x1 was at least 4"
+            in " ".join(methods_paragraph(two).split()))
     saved = result.to_dict()["data"]
     assert saved["row_filters"] == ["school = Pasteur"] and saved["rows_in_file"] == 301
     assert any("read as row names" in w for w in result.warnings)
