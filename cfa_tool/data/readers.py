@@ -139,7 +139,7 @@ def blank_text_as_missing(frame: pd.DataFrame, keep_text: tuple[str, ...] = (), 
     out = frame
     for position, column in enumerate(frame.columns):
         series = frame.iloc[:, position]
-        if column in keep_text or not (series.dtype == object or isinstance(series.dtype, pd.StringDtype)):
+        if column in keep_text or not _text_dtype(series):
             continue
         values = series.to_numpy(dtype=object, na_value=None)
         blank = np.fromiter((isinstance(v, str) and (not v.strip() or (bool(markers) and v.strip() in markers))
@@ -159,6 +159,11 @@ def blank_text_as_missing(frame: pd.DataFrame, keep_text: tuple[str, ...] = (), 
     return out
 
 
+def _text_dtype(column: pd.Series) -> bool:
+    """Whether a column holds Python objects or text (pandas' object and string types)."""
+    return column.dtype == object or isinstance(column.dtype, pd.StringDtype)
+
+
 def _numbers_from_text(loaded: LoadedData, keep_text: tuple[str, ...]) -> LoadedData:
     """Text variables of an SPSS or Stata file that hold only numbers, each written as the number's plain spelling
     ('3', '4.5'; not '007' or '3.0', which stay text), read as numbers, and their value labels keyed by those
@@ -168,7 +173,7 @@ def _numbers_from_text(loaded: LoadedData, keep_text: tuple[str, ...]) -> Loaded
     changed = {}
     for column in frame.columns:
         series = frame[column]
-        if column in keep_text or not (series.dtype == object or isinstance(series.dtype, pd.StringDtype)):
+        if column in keep_text or not _text_dtype(series):
             continue
         rest = series.dropna().tolist()
         if not rest or not all(isinstance(v, str) and _plain_number(v) is not None for v in rest):
@@ -308,6 +313,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if any(v is None for r in body for v in r):
         _check_uncomputed_formulas(path, ws.title, first)
     frame = pd.DataFrame(body, columns=header)
+    _check_header_rows(frame, where, False)
     if row_names:
         frame = _split_row_names(frame, names_out)
         notes.append(f"{path} (sheet '{ws.title}'): the first column has no name in the header and was read as row "
@@ -622,8 +628,10 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         raise DataError(f"data file '{path}' has a header but no rows of data")
     frame = blank_text_as_missing(frame, text_columns, MISSING_MARKERS, decimal == ",")  # 'NA ' is 'NA'
     raw = _RawCells(text[body_start:], delimiter, widest, len(header))
+    _check_header_rows(frame, str(path), decimal == ",", text_columns)
     if decimal == ",":
         _check_dotted_thousands(frame, raw, header, path, notes)
+        _check_decimal_points(frame, str(path), text_columns)
     _keep_number_spellings(frame, raw)
     _note_missing_markers(raw, header, path, notes)
     empty = widest - len(header)
@@ -636,6 +644,81 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         if notes is not None:
             notes.append(f"{path}: the first column has no name in the header and was read as row names, not as data")
     return frame
+
+
+def _as_numbers(column: pd.Series, decimal_comma: bool) -> pd.Series:
+    """The cells of a column as numbers (NaN where a cell is missing or not a number), a decimal comma read as
+    the point when ``decimal_comma``."""
+    if column.dtype.kind in "iuf":
+        return column.astype(float)
+    cells = column.map(lambda v: v.strip() if isinstance(v, str) else v)
+    if decimal_comma:
+        cells = cells.map(lambda v: v.replace(",", ".", 1) if isinstance(v, str) and "." not in v else v)
+    return pd.to_numeric(cells.where(cells.map(lambda v: not isinstance(v, bool))), errors="coerce")
+
+
+MAX_HEADER_ROWS = 3  # further header rows a survey platform writes under the column names (question texts, ids)
+
+
+def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, text_columns=()) -> None:
+    """Rows right under the header that hold text in every column holding numbers below them: survey platforms
+    export the question texts and import ids as a second and third header row.  Read as answers they make every
+    item column text; the remedy is to delete them, not to recode the answers."""
+    if len(frame) <= MAX_HEADER_ROWS + 1:
+        return
+    leads = []
+    for position in range(frame.shape[1]):
+        column = frame.iloc[:, position]
+        if not _text_dtype(column) or frame.columns[position] in text_columns:
+            continue
+        numbers = _as_numbers(column, decimal_comma)
+        present = column.notna().to_numpy() & column.map(lambda v: not (isinstance(v, str) and not v.strip())).to_numpy()
+        text = present & numbers.isna().to_numpy()
+        lead = 0
+        while lead < MAX_HEADER_ROWS and text[lead]:
+            lead += 1
+        if lead == 0 or text[lead:].any() or not present[lead:].any():
+            continue  # numbers from the first row on, or text further down: a column of answers or of text
+        leads.append((lead, position))
+    if len(leads) < 2 or len({lead for lead, _ in leads}) != 1:
+        return
+    lead, position = leads[0]
+    example = printable(str(frame.iloc[0, position]).strip())[:60]
+    rows = "data row 1" if lead == 1 else f"data rows 1-{lead}"
+    look = "looks like a further header row" if lead == 1 else "look like further header rows"
+    raise DataError(f"{where}: {rows} under the column names {look} (text such as '{example}' in every column "
+                    f"that holds numbers below {'it' if lead == 1 else 'them'}), as survey platforms export question "
+                    f"texts and import ids; delete {'it' if lead == 1 else 'them'}, keeping the one row of column "
+                    f"names, in a copy of the file")
+
+
+_COMMA_NUMBER = re.compile(r"[+-]?\d+,\d+")
+_POINT_NUMBER = re.compile(r"[+-]?\d*\.\d+")
+
+
+def _check_decimal_points(frame: pd.DataFrame, where: str, text_columns=()) -> None:
+    """In a file with decimal commas, a column of numbers in which some rows were typed with decimal points
+    ('3.5' beside '4,5') is read as text; the error names the row that differs, not the first cell."""
+    for position in range(frame.shape[1]):
+        column = frame.iloc[:, position]
+        if not _text_dtype(column) or frame.columns[position] in text_columns:
+            continue
+        cells = column.map(lambda v: v.strip() if isinstance(v, str) else v).dropna()
+        cells = cells[cells.map(lambda v: isinstance(v, str) and v != "")]
+        if cells.empty:
+            continue
+        commas = cells.str.fullmatch(_COMMA_NUMBER.pattern)
+        points = cells.str.fullmatch(_POINT_NUMBER.pattern)
+        whole = cells.str.fullmatch(r"[+-]?\d+")
+        if not commas.any() or not points.any() or not (commas | points | whole).all():
+            continue
+        first = cells.index[points.to_numpy().argmax()]
+        row = int(frame.index.get_loc(first)) + 1
+        example = cells[commas].iloc[0]
+        raise DataError(f"{where}: column '{printable(frame.columns[position])}' holds "
+                        f"'{printable(cells[first])}' in data row {row}, written with a '.', while the file writes "
+                        f"decimals with commas (such as '{printable(example)}'); write the decimals of that row with "
+                        f"commas, as the others are (and numbers without thousands separators)")
 
 
 def _decimal_mark(text: str, delimiter: str) -> str:
