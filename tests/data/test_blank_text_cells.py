@@ -16,19 +16,8 @@ import pytest
 import cfa_tool
 from cfa_tool.data.non_answers import says_no_answer, unlabelled_extra_codes
 from cfa_tool.data.readers import read_data
-from cfa_tool.resources import resource_dir
 
 pyreadstat = pytest.importorskip("pyreadstat")
-
-
-@pytest.fixture(scope="module")
-def demo() -> pd.DataFrame:
-    return pd.read_csv(resource_dir("demo") / "rider_survey.csv")
-
-
-@pytest.fixture(scope="module")
-def model() -> str:
-    return (resource_dir("models") / "rider_three_factors.cfa").read_text()
 
 
 def _items(frame: pd.DataFrame) -> list[str]:
@@ -44,75 +33,75 @@ def _as_text(frame: pd.DataFrame) -> pd.DataFrame:
 
 
 @pytest.fixture(scope="module")
-def reference(demo, model, tmp_path_factory):
+def reference(rider_demo, rider_model, tmp_path_factory):
     """The check and the fit of the demo as a plain CSV file (its empty cells are no answers)."""
     path = tmp_path_factory.mktemp("csv") / "riders.csv"
-    demo.to_csv(path, index=False)
-    return cfa_tool.check(model, str(path)), cfa_tool.fit(model, str(path))
+    rider_demo.to_csv(path, index=False)
+    return cfa_tool.check(rider_model, str(path)), cfa_tool.fit(rider_model, str(path))
 
 
-def _same_as_reference(model, data, reference):
+def _same_as_reference(rider_model, data, reference):
     check, fit = reference
     gaps = int(check.with_gaps)
     assert gaps == 9  # the demo's rows with a missing item answer, counted in its CSV file by pandas
-    mine = cfa_tool.check(model, data)
+    mine = cfa_tool.check(rider_model, data)
     assert (mine.complete, mine.with_gaps) == (check.complete, check.with_gaps)
-    result = cfa_tool.fit(model, data)
+    result = cfa_tool.fit(rider_model, data)
     assert result.method.missing is fit.method.missing  # full information: every row kept, as with the CSV
     assert result.n_obs == fit.n_obs == 480
     assert result.fit.chi_square == pytest.approx(fit.fit.chi_square, rel=1e-8)
 
 
-def test_spss_text_items_with_blank_cells_read_as_the_csv(demo, model, reference, tmp_path):
+def test_spss_text_items_with_blank_cells_read_as_the_csv(rider_demo, rider_model, reference, tmp_path):
     path = tmp_path / "riders.sav"
-    pyreadstat.write_sav(_as_text(demo), str(path))
-    _same_as_reference(model, str(path), reference)
+    pyreadstat.write_sav(_as_text(rider_demo), str(path))
+    _same_as_reference(rider_model, str(path), reference)
 
 
-def test_stata_text_items_with_blank_cells_read_as_the_csv(demo, model, reference, tmp_path):
+def test_stata_text_items_with_blank_cells_read_as_the_csv(rider_demo, rider_model, reference, tmp_path):
     path = tmp_path / "riders.dta"
-    pyreadstat.write_dta(_as_text(demo), str(path))
-    _same_as_reference(model, str(path), reference)
+    pyreadstat.write_dta(_as_text(rider_demo), str(path))
+    _same_as_reference(rider_model, str(path), reference)
 
 
-def test_excel_cells_holding_a_space_read_as_the_csv(demo, model, reference, tmp_path):
+def test_excel_cells_holding_a_space_read_as_the_csv(rider_demo, rider_model, reference, tmp_path):
     openpyxl = pytest.importorskip("openpyxl")
     book = openpyxl.Workbook()
     sheet = book.active
-    sheet.append(list(demo.columns))
-    for row in demo.itertuples(index=False):
+    sheet.append(list(rider_demo.columns))
+    for row in rider_demo.itertuples(index=False):
         sheet.append([(" " if v != v else v) if isinstance(v, float) else v for v in row])
     path = tmp_path / "riders.xlsx"
     book.save(path)
-    _same_as_reference(model, str(path), reference)
+    _same_as_reference(rider_model, str(path), reference)
 
 
-def test_data_frame_with_blank_strings_reads_as_the_csv_and_is_left_unchanged(demo, model, reference):
-    frame = _as_text(demo)
-    column = next(c for c in _items(demo) if (frame[c] == "").any())
+def test_data_frame_with_blank_strings_reads_as_the_csv_and_is_left_unchanged(rider_demo, rider_model, reference):
+    frame = _as_text(rider_demo)
+    column = next(c for c in _items(rider_demo) if (frame[c] == "").any())
     frame.loc[frame.index[frame[column] == ""][0], column] = "   "  # spaces only
     before = frame.copy()
-    _same_as_reference(model, frame, reference)
+    _same_as_reference(rider_model, frame, reference)
     pd.testing.assert_frame_equal(frame, before)  # the caller's frame is not altered
 
 
-def test_csv_cell_na_with_a_space_is_the_no_answer_na(demo, tmp_path):
+def test_csv_cell_na_with_a_space_is_the_no_answer_na(rider_demo, tmp_path):
     """Hostile case 20: 'NA ' was refused as text ('NA'); it is the marker 'NA' of no answer, as 'NA' is."""
-    text = demo.to_csv(index=False, na_rep="NA ")
+    text = rider_demo.to_csv(index=False, na_rep="NA ")
     path = tmp_path / "riders.csv"
     path.write_text(text)
     loaded = read_data(path)
-    items = _items(demo)
+    items = _items(rider_demo)
     assert loaded.frame[items].dtypes.map(lambda d: d.kind in "iuf").all()
-    assert int(loaded.frame[items].isna().to_numpy().sum()) == int(demo[items].isna().to_numpy().sum())
+    assert int(loaded.frame[items].isna().to_numpy().sum()) == int(rider_demo[items].isna().to_numpy().sum())
     assert any("'NA'" in note for note in loaded.notes)  # the reading is said
 
 
-def test_spss_text_items_with_labelled_text_codes(demo, model, tmp_path):
+def test_spss_text_items_with_labelled_text_codes(rider_demo, rider_model, tmp_path):
     """Hostile case 25: text codes with value labels crashed the label table ({code:g} of a str), and the text
     code '9' labelled "Don't know" was analysed; now its cells are read as missing and named first."""
-    data = _as_text(demo.dropna())
-    items = _items(demo)
+    data = _as_text(rider_demo.dropna())
+    items = _items(rider_demo)
     rows = data.index[::25]
     data.loc[rows, "clean"] = "9"
     labels = {c: {"1": "Strongly disagree", "2": "Disagree", "3": "Neither", "4": "Agree", "5": "Strongly agree"}
@@ -120,7 +109,7 @@ def test_spss_text_items_with_labelled_text_codes(demo, model, tmp_path):
     labels["clean"]["9"] = "Don't know"
     path = tmp_path / "riders.sav"
     pyreadstat.write_sav(data, str(path), variable_value_labels=labels)
-    result = cfa_tool.fit(model, str(path))
+    result = cfa_tool.fit(rider_model, str(path))
     assert result.n_obs == len(data)  # 471 complete rows of the demo; the cells of '9' are gaps, kept by FIML
     assert result.missing_data["coverage"]["clean"] == pytest.approx(1 - len(rows) / len(data))
     first = result.problems[0]
@@ -151,9 +140,9 @@ def test_answers_that_begin_like_no_answers_stay_answers(text):
 AGREE = {1: "Strongly disagree", 2: "Disagree", 3: "Neither agree nor disagree", 4: "Agree", 5: "Strongly agree"}
 
 
-def test_stata_code_labelled_na_is_read_as_missing(demo, model, tmp_path):
-    data = demo.copy()
-    items = _items(demo)
+def test_stata_code_labelled_na_is_read_as_missing(rider_demo, rider_model, tmp_path):
+    data = rider_demo.copy()
+    items = _items(rider_demo)
     data.loc[::20, "clean"] = 6
     for c in items:
         data[c] = data[c].astype("float64")
@@ -161,19 +150,19 @@ def test_stata_code_labelled_na_is_read_as_missing(demo, model, tmp_path):
     labels["clean"][6] = "N/A"
     path = tmp_path / "riders.dta"
     data.to_stata(path, write_index=False, value_labels=labels, version=118)
-    result = cfa_tool.fit(model, str(path))
+    result = cfa_tool.fit(rider_model, str(path))
     assert "'N/A'" in result.problems[0].explanation and "clean 24" in result.problems[0].explanation  # rows 1, 21, ... 461
     assert np.nanmax(read_data(path).frame["clean"]) == 5
 
 
-def test_a_labelled_code_beyond_the_scale_is_named_first(demo, model, tmp_path):
-    data = demo.copy()
+def test_a_labelled_code_beyond_the_scale_is_named_first(rider_demo, rider_model, tmp_path):
+    data = rider_demo.copy()
     data.loc[::20, "clean"] = 6
-    labels = {c: dict(AGREE) for c in _items(demo)}
+    labels = {c: dict(AGREE) for c in _items(rider_demo)}
     labels["clean"][6] = "Something else"
     path = tmp_path / "riders.sav"
     pyreadstat.write_sav(data, str(path), variable_value_labels=labels)
-    check = cfa_tool.check(model, str(path))
+    check = cfa_tool.check(rider_model, str(path))
     first = check.problems[0].explanation
     assert "clean" in first and "'Something else'" in first and "24 cells" in first
     assert "--missing-codes 6" in check.problems[0].advice

@@ -13,19 +13,8 @@ import pytest
 
 import cfa_tool
 from cfa_tool.data.readers import read_data
-from cfa_tool.resources import resource_dir
 
 openpyxl = pytest.importorskip("openpyxl")
-
-
-@pytest.fixture(scope="module")
-def demo() -> pd.DataFrame:
-    return pd.read_csv(resource_dir("demo") / "rider_survey.csv")
-
-
-@pytest.fixture(scope="module")
-def model() -> str:
-    return (resource_dir("models") / "rider_three_factors.cfa").read_text()
 
 
 def _put(sheet, frame: pd.DataFrame) -> None:
@@ -35,19 +24,19 @@ def _put(sheet, frame: pd.DataFrame) -> None:
 
 
 @pytest.mark.parametrize("state", ["hidden", "veryHidden"])
-def test_a_hidden_first_sheet_is_not_read_without_sheet(demo, model, tmp_path, state):
+def test_a_hidden_first_sheet_is_not_read_without_sheet(rider_demo, rider_model, tmp_path, state):
     book = openpyxl.Workbook()
     draft = book.active
     draft.title = "draft_old"
     draft.sheet_state = state
-    _put(draft, demo.iloc[:200])
-    _put(book.create_sheet("answers"), demo)
+    _put(draft, rider_demo.iloc[:200])
+    _put(book.create_sheet("answers"), rider_demo)
     path = tmp_path / "riders.xlsx"
     book.save(path)
     loaded = read_data(path)
     assert len(loaded.frame) == 480  # the visible sheet's rows, as pandas counts the demo CSV
     assert any("the sheet 'answers' was analysed" in n and "'draft_old' (hidden)" in n for n in loaded.notes)
-    result = cfa_tool.fit(model, str(path))
+    result = cfa_tool.fit(rider_model, str(path))
     assert result.n_obs == 480
     assert any("'answers' was analysed" in w for w in result.warnings)  # said in every view's notes
     named = read_data(path, sheet="draft_old")
@@ -55,24 +44,24 @@ def test_a_hidden_first_sheet_is_not_read_without_sheet(demo, model, tmp_path, s
     assert any("the workbook hides this sheet" in n for n in named.notes)
 
 
-def test_rows_hidden_by_a_filter_are_analysed_and_named_first(demo, model, tmp_path):
+def test_rows_hidden_by_a_filter_are_analysed_and_named_first(rider_demo, rider_model, tmp_path):
     book = openpyxl.Workbook()
     sheet = book.active
-    _put(sheet, demo)
-    sheet.auto_filter.ref = f"A1:N{len(demo) + 1}"
+    _put(sheet, rider_demo)
+    sheet.auto_filter.ref = f"A1:N{len(rider_demo) + 1}"
     sheet.auto_filter.add_filter_column(1, ["north"])
-    south = [k for k, v in enumerate(demo.district, start=2) if v != "north"]
+    south = [k for k, v in enumerate(rider_demo.district, start=2) if v != "north"]
     for k in south:
         sheet.row_dimensions[k].hidden = True
     path = tmp_path / "riders.xlsx"
     book.save(path)
-    result = cfa_tool.fit(model, str(path))
+    result = cfa_tool.fit(rider_model, str(path))
     assert result.n_obs == 480
     first = result.problems[0]
-    hidden = int((demo.district != "north").sum())  # counted in the demo CSV by pandas
+    hidden = int((rider_demo.district != "north").sum())  # counted in the demo CSV by pandas
     assert f"hides {hidden} of its 480 rows of data by its filter" in first.explanation
     assert "were analysed" in first.explanation
     assert "--keep \"district == 'north'\"" in first.advice
-    kept = cfa_tool.fit(model, str(path), keep="district == 'north'")  # the advice, followed
+    kept = cfa_tool.fit(rider_model, str(path), keep="district == 'north'")  # the advice, followed
     assert kept.n_obs == 480 - hidden
     assert not any("hides" in p.explanation for p in kept.problems)
