@@ -141,11 +141,15 @@ def blank_text_as_missing(frame: pd.DataFrame, keep_text: tuple[str, ...] = (), 
         series = frame.iloc[:, position]
         if column in keep_text or not _text_dtype(series):
             continue
-        values = series.to_numpy(dtype=object, na_value=None)
-        blank = np.fromiter((isinstance(v, str) and (not v.strip() or (bool(markers) and v.strip() in markers))
-                             for v in values), dtype=bool, count=len(values))
+        if isinstance(series.dtype, pd.StringDtype):  # text only: compared at once
+            stripped = series.str.strip()
+            blank = ((stripped == "") | stripped.isin(markers)).fillna(False).to_numpy(dtype=bool)
+        else:
+            blank = np.fromiter((isinstance(v, str) and (not v.strip() or (bool(markers) and v.strip() in markers))
+                                 for v in series.to_numpy(dtype=object)), dtype=bool, count=len(series))
         if not blank.any():
             continue
+        values = series.to_numpy(dtype=object, na_value=None)
         kept = series.where(~blank)
         rest = values[~blank & pd.notna(kept).to_numpy()]
         if all(isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, (bool, np.bool_))
@@ -665,6 +669,13 @@ def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, tex
     export the question texts and import ids as a second and third header row.  Read as answers they make every
     item column text; the remedy is to delete them, not to recode the answers."""
     if len(frame) <= MAX_HEADER_ROWS + 1:
+        return
+
+    def text(v) -> bool:
+        return isinstance(v, str) and v.strip() != "" and number(v, decimal_comma) is None
+
+    top, below = frame.iloc[0].tolist(), frame.iloc[MAX_HEADER_ROWS].tolist()
+    if sum(text(a) and not text(b) for a, b in zip(top, below)) < 2:  # the common case, at the cost of two rows
         return
     leads = []
     for position in range(frame.shape[1]):

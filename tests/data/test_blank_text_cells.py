@@ -184,3 +184,15 @@ def test_a_code_apart_from_the_scale_raises_the_caution():
     labels = {**AGREE, 9: "Other"}
     assert unlabelled_extra_codes(np.array([1, 2, 3, 4, 5, 9.0]), labels) == [(9.0, "Other")]
     assert unlabelled_extra_codes(np.array([1, 2, 3, 4, 5.0]), labels) == []  # not given: nothing to say
+
+
+def test_a_no_answer_label_on_a_text_code_is_read_as_missing():
+    """A text variable whose codes are letters ('a' to 'c', 'x' labelled "Don't know"): the cells of 'x' are no
+    answer, counted here by hand (rows 2 and 5)."""
+    from cfa_tool.data.non_answers import labelled_non_answers
+
+    frame = pd.DataFrame({"mode": ["a", "x", "b", "c", " x", "a"]})
+    out, found = labelled_non_answers(frame, {"mode": {"a": "bus", "b": "tram", "c": "ferry", "x": "Don't know"}})
+    assert out["mode"].isna().tolist() == [False, True, False, False, True, False]
+    assert [(f.value, f.rows) for f in found] == [("x", (2, 5))]
+    assert frame["mode"].notna().all()  # the frame given is left as it was
