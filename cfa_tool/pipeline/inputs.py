@@ -158,8 +158,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     if filters:
         frame, filter_notes = apply_filters(frame, filters, loaded.source, loaded.value_labels)
         notes += filter_notes
-        kept = set(row_numbers(frame).tolist())  # rows a workbook hides count when the filters kept them
-        cautions = tuple(c for c in (c.among(kept) if isinstance(c, HiddenRows) else c for c in cautions) if c)
+        cautions = kept_cautions(cautions, frame)
     check_columns(spec, columns, loaded.source, loaded.sheet_hint())
     check_declared_ranges(spec, frame, loaded.source, loaded.value_labels)
     values = item_values(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
@@ -171,6 +170,12 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     return spec, replace(loaded, frame=frame, cautions=cautions + beyond, read_frame=loaded.frame if keep else None,
                          row_filters=tuple(f.text for f in filters), items=items,
                          odd_values=odd_values(frame, spec.observed_names, row_numbers(frame), items.values)), notes
+
+
+def kept_cautions(cautions: tuple, frame: pd.DataFrame) -> tuple:
+    """``LoadedData.cautions`` of the rows row filters kept in ``frame``: rows a workbook hides count when kept."""
+    kept = set(row_numbers(frame).tolist())
+    return tuple(c for c in (c.among(kept) if isinstance(c, HiddenRows) else c for c in cautions) if c)
 
 
 def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> pd.DataFrame:
@@ -341,13 +346,14 @@ def odd_value_problems(loaded: LoadedData) -> tuple:
         for odd in loaded.cautions + loaded.odd_values)
 
 
-def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answers: tuple = ()) -> LoadedData:
+def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answers: tuple = (),
+             cautions: tuple = ()) -> LoadedData:
     """``frame`` as loaded data holding the values among the columns ``names`` that look like no answers, and
     those of ``non_answers`` (``LoadedData.non_answers``, read as missing) in them, for the commands that read
     their data without :func:`read_inputs_with_notes` (replicate, explore): their cautions
     (:func:`odd_value_problems`) and :func:`odd_values_named` then work as for every other command."""
     return LoadedData(frame, source, odd_values=odd_values(frame, tuple(names), row_numbers(frame)),
-                      non_answers=tuple(f for f in non_answers if f.column in set(names)))
+                      non_answers=tuple(f for f in non_answers if f.column in set(names)), cautions=cautions)
 
 
 def with_odd_values(result, loaded: LoadedData):

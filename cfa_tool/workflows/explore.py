@@ -413,7 +413,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
                               f"{len(target_file.factors)} factor columns")
     ordinal_items = _ordinal_items(ordinal, chosen)
     # values that look like no answers among the rows read (both halves of a split): first in every view
-    data_problems = api.odd_value_problems(api.screened(frame, tuple(chosen), source, loaded.non_answers))
+    data_problems = api.odd_value_problems(api.screened(frame, tuple(chosen), source, loaded.non_answers,
+                                                          api.kept_cautions(loaded.cautions, frame)))
     halves = None
     if split is not None:
         split = options.seed(split)
