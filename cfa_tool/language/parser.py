@@ -153,7 +153,8 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
     elif isinstance(exc, UnexpectedCharacters):
         char = exc.char if exc.char not in "\r\n" else "line break"
         char = printable(char)
-        message = f"unexpected character '{char}'{character_names(exc.char)}"
+        latin = exc.char.isalpha() and unicodedata.name(exc.char, "").startswith("LATIN")
+        message = f"unexpected character '{char}'" + ("" if latin else character_names(exc.char))  # é is seen
         if char == "'":
             message += ' (use double quotes for quoted names and titles)'
         if char.isalpha():  # a letter beyond A-Z: plain names are ASCII
