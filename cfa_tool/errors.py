@@ -37,6 +37,22 @@ def printable(text: object, keep_newlines: bool = False) -> str:
     return _UNPRINTABLE.sub(escape, value)
 
 
+def character_names(text: str, beside: str = "") -> str:
+    """Words naming the characters of ``text`` beyond plain ASCII that ``beside`` does not hold, by their Unicode
+    code points and names (' (U+0441 CYRILLIC SMALL LETTER ES)'), or '': a look-alike letter or an invisible
+    mark (U+200B ZERO WIDTH SPACE, U+200F RIGHT-TO-LEFT MARK) cannot be seen in a message that shows it."""
+    import unicodedata
+
+    seen = []
+    for ch in text:
+        if ord(ch) > 0x7E and ch not in beside and ch not in seen:
+            seen.append(ch)
+    if not seen:
+        return ""
+    named = ", ".join(f"U+{ord(ch):04X} {unicodedata.name(ch, 'UNNAMED CHARACTER')}" for ch in seen[:3])
+    return f" ({named}{' and more' if len(seen) > 3 else ''})"
+
+
 @dataclass(frozen=True)
 class Location:
     """A place in a model file: 1-based line and column."""

@@ -27,6 +27,22 @@ factor ability: x1..x9
 """
 
 
+@pytest.fixture(scope="session")
+def rider_demo() -> pd.DataFrame:
+    """The bundled demo data: a fictional transit agency's rider survey, simulated with a fixed seed."""
+    from cfa_tool.resources import resource_dir
+
+    return pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+
+
+@pytest.fixture(scope="session")
+def rider_model() -> str:
+    """The bundled three-factor model of the demo data."""
+    from cfa_tool.resources import resource_dir
+
+    return (resource_dir("models") / "rider_three_factors.cfa").read_text()
+
+
 def holzinger_swineford() -> pd.DataFrame:
     """Holzinger & Swineford (1939): 301 pupils, ability tests x1..x9, two schools."""
     return pd.read_csv(DATASETS / "holzinger_swineford_1939.csv", index_col=0)

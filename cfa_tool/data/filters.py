@@ -17,6 +17,7 @@ import pandas as pd
 
 from cfa_tool.data.kept_rows import KEPT_BY
 from cfa_tool.data.labels import label_text
+from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.numbers import number
 from cfa_tool.suggest import close_names
@@ -99,6 +100,18 @@ def _second_operator(text: str, start: int, op: str, position: int) -> str:
     return f"{where}: unknown operator '{joined}'; the operators are {' '.join(OPERATORS)}"
 
 
+def _first_text(column: pd.Series, numeric: pd.Series) -> str:
+    """Words naming the first cell of a column of numbers that is not a number ('65+' in data row 4), or ''."""
+    text = column.notna().to_numpy() & numeric.isna().to_numpy()
+    if not text.any() or text.sum() * 2 > column.notna().sum():  # a column of text: no one cell to name
+        return ""
+    k = int(text.argmax())
+    more = int(text.sum()) - 1
+    return (f" ('{printable(str(column.iloc[k]))}' in data row {row_numbers(column)[k]}"
+            + (f", and {more} more such cell{'s' if more != 1 else ''}" if more else "")
+            + ", among numbers: correct it or leave it empty in a copy of the file to compare numbers)")
+
+
 def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
                   value_labels: dict[str, dict] | None = None) -> tuple[pd.DataFrame, list[str]]:
     """Keep the rows that meet every filter; notes say how many each filter left out.  Text is compared
@@ -136,8 +149,8 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
                                       f"in another form than YYYY-MM-DD (such as '{printable(written)}'), whose order "
                                       f"of day and month the file does not say, so they cannot be compared by order; "
                                       f"in a copy of the file write them as YYYY-MM-DD, which filters compare as dates")
-                raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds text, which can only be "
-                                  f"compared with = or !=")
+                raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds text"
+                                  f"{_first_text(column, numeric)}, which can only be compared with = or !=")
             values = column.map(lambda v: None if pd.isna(v) else _cell_label(v))
             target = label_text(f.value)
             if target.casefold() in ("true", "false") and values.isin(("TRUE", "FALSE")).any():

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from cfa_tool.suggest import close_names
-from cfa_tool.errors import ModelError
+from cfa_tool.errors import ModelError, character_names
 from cfa_tool.language.spec import Spec
 from cfa_tool.data.odd_values import code_like
 from cfa_tool.input_files import base_name
@@ -26,7 +26,8 @@ def check_columns(spec: Spec, columns: list[str], data_source: str, sheet_hint: 
         if name not in available:
             loc = spec.first_mention(name)
             guess = close_names(name, columns)
-            hint = f"; did you mean '{guess[0]}'?{_spaces_only(name, guess[0])}" if guess else sheet_hint
+            hint = (f"; did you mean '{guess[0]}'{character_names(guess[0], name)}?{_spaces_only(name, guess[0])}"
+                    if guess else sheet_hint)
             raise ModelError(
                 f"unknown variable '{name}' (not a column of {data_name}{hint})",
                 loc,

@@ -31,8 +31,11 @@ from cfa_tool.input_files import base_name
 #: phrases that say a value is not an answer (compared after :func:`_plain`): one vocabulary for labels and cells
 NON_ANSWER_PHRASES = frozenset({
     "refused", "refusal", "refused to answer", "refused to say", "declined", "declined to answer",
-    "don t know", "dont know", "do not know", "not known", "not sure don t know",
-    "not asked", "not applicable", "inapplicable", "does not apply", "na not applicable", "legitimate skip",
+    "decline to answer", "decline to say", "declined to say",
+    "don t know", "dont know", "do not know", "not known", "not sure don t know", "dk", "dk na",
+    "not sure", "unsure", "no opinion", "can t say", "cannot say", "can not say", "can t tell", "cannot tell",
+    "not asked", "not applicable", "inapplicable", "does not apply", "does not apply to me", "doesn t apply",
+    "doesn t apply to me", "na not applicable", "n a", "na", "legitimate skip",
     "no answer", "not answered", "no response", "non response", "nonresponse", "missing", "missing value",
     "system missing", "skipped", "skip", "valid skip", "prefer not to say", "prefer not to answer",
     "rather not say", "not stated", "no data", "question not asked",
@@ -46,14 +49,20 @@ def _plain(text: str) -> str:
     return " ".join(re.sub(r"[^\w]+", " ", text.lower().replace("_", " ")).split())
 
 
-def says_no_answer(text) -> bool:
-    """Whether a value label or a cell's text says the value is not an answer: one of the phrases, or several
-    joined by '/', ',', ';', '&' or 'or' ("Don't know / refused")."""
+def says_no_answer(text, explained: bool = False) -> bool:
+    """Whether a value label or a cell's text says the value is not an answer: one of the phrases as a whole
+    ('N/A', 'DK/NA'), or several joined by '/', ',', ';', '&' or 'or' ("Don't know / refused").  Phrases are
+    compared as whole words, so 'Not at all', 'Never' or 'missing my bus' are answers.  ``explained`` (value
+    labels): a phrase followed, after such a separator, by words that explain it ('Not applicable / never ride')."""
     if not isinstance(text, str) or not text.strip():
         return False
+    if _plain(text) in NON_ANSWER_PHRASES:
+        return True
     parts = [_plain(p) for p in re.split(r"[/,;&]|\bor\b", text.lower())]
     parts = [p for p in parts if p]
-    return bool(parts) and all(p in NON_ANSWER_PHRASES for p in parts)
+    if not parts:
+        return False
+    return all(p in NON_ANSWER_PHRASES for p in parts) or (explained and len(parts) > 1 and parts[0] in NON_ANSWER_PHRASES)
 
 
 class NonAnswerKind(enum.Enum):
@@ -87,21 +96,27 @@ def _numbers(values) -> np.ndarray:
 
 def labelled_non_answers(frame: pd.DataFrame, value_labels: dict, skip: tuple[float, ...] = ()
                          ) -> tuple[pd.DataFrame, tuple[NonAnswer, ...]]:
-    """``frame`` with the codes whose value label says no answer read as missing (numeric columns), and what was
-    read so; codes in ``skip`` (given as missing codes already) are left to them."""
+    """``frame`` with the codes whose value label says no answer read as missing (numeric columns, and text
+    variables with labelled text codes), and what was read so; codes in ``skip`` (given as missing codes already)
+    are left to them."""
     found: list[NonAnswer] = []
     out = frame
     for column, labels in value_labels.items():
-        if column not in frame.columns or not pd.api.types.is_numeric_dtype(frame[column]):
+        if column not in frame.columns:
             continue
+        numeric = pd.api.types.is_numeric_dtype(frame[column])
         codes = {code: text for code, text in labels.items()
-                 if isinstance(code, float) and code not in skip and says_no_answer(text)}
+                 if isinstance(code, float if numeric else str) and code not in skip
+                 and says_no_answer(text, explained=True)}
         if not codes:
             continue
-        values = frame[column].to_numpy(dtype=float, na_value=np.nan)
+        if numeric:
+            values = frame[column].to_numpy(dtype=float, na_value=np.nan)
+        else:  # a text variable: its cells as written, compared without spaces at their ends
+            values = np.array([v.strip() if isinstance(v, str) else None for v in frame[column]], dtype=object)
         hit = np.zeros(len(values), dtype=bool)
         for code, text in sorted(codes.items()):
-            cells = values == code
+            cells = values == (code if numeric else code.strip())
             if cells.any():
                 found.append(NonAnswer(NonAnswerKind.LABELLED, column, code, text,
                                        tuple(int(r) for r in np.flatnonzero(cells) + 1)))
@@ -111,6 +126,76 @@ def labelled_non_answers(frame: pd.DataFrame, value_labels: dict, skip: tuple[fl
                 out = frame.copy()
             out[column] = frame[column].where(~hit)
     return out, tuple(found)
+
+
+def unlabelled_extra_codes(column: np.ndarray, labels: dict) -> list[tuple[float, str]]:
+    """Codes given in an item's answers (``column``, floats) whose value label is not recognised as no answer but
+    that stand beyond the item's answer scale, so that they may well mean no answer: a code above or below every
+    other labelled code, and either apart from them by more than one step (9 'Other' on a 1-5 scale), or next to a
+    scale whose end labels mirror each other (1 'Strongly disagree' ... 5 'Strongly agree') while its own label
+    shares no word with the far end (6 'Something else').  A rule of thumb of this project (common practice of
+    reading survey codebooks), used for a caution only: the values are analysed as they are.  [(code, label)]."""
+    coded = sorted((float(k), v) for k, v in labels.items()
+                   if isinstance(k, (int, float)) and not says_no_answer(v, explained=True))
+    if len(coded) < 4:  # too few labels to speak of a scale of answers
+        return []
+    present = set(column[np.isfinite(column)].tolist())
+    out = []
+    for k in (0, len(coded) - 1):
+        code, text = coded[k]
+        others = coded[1:] if k == 0 else coded[:-1]
+        steps = np.diff([c for c, _ in others])
+        if code not in present or not (steps > 0).all() or not np.allclose(steps, steps[0]):
+            continue
+        gap = abs(code - (others[0][0] if k == 0 else others[-1][0]))
+        words = [set(_plain(t).split()) for t in (text, others[0][1], others[-1][1])]
+        far = words[2] if k == 0 else words[1]
+        mirrored = bool(words[1] & words[2])
+        if gap > steps[0] + 1e-9 or (mirrored and not words[0] & far):
+            out.append((code, text))
+    return out
+
+
+@dataclass(frozen=True)
+class BeyondScale:
+    """A labelled code beyond an item's answer scale (:func:`unlabelled_extra_codes`), analysed as an answer but
+    named first: ``rows`` are its cells' data-row numbers."""
+
+    column: str
+    value: float
+    label: str
+    rows: tuple[int, ...]
+    scale: tuple[float, float]  # the lowest and highest of the item's other labelled codes
+
+    def caution(self, source: str) -> str:
+        name = source.replace("\\", "/").rsplit("/", 1)[-1]
+        shown = ", ".join(str(r) for r in self.rows[:3]) + (f" and {len(self.rows) - 3} more" if len(self.rows) > 3 else "")
+        cells = len(self.rows)
+        return (f"The item {printable(self.column)} of {name} holds the code {self.value:g} labelled "
+                f"'{printable(self.label)}' ({cells} cell{'s' if cells != 1 else ''}: data "
+                f"row{'s' if cells != 1 else ''} {shown}), beyond its other labelled answers "
+                f"({self.scale[0]:g} to {self.scale[1]:g}), analysed as an answer: a code of no answer?")
+
+    def advice(self) -> str:
+        return (f"If {self.value:g} '{printable(self.label)}' is not an answer on the scale, give --missing-codes "
+                f"{self.value:g}; if it is, nothing.")
+
+
+def beyond_scale(frame: pd.DataFrame, names, value_labels: dict, rows: np.ndarray) -> tuple[BeyondScale, ...]:
+    """The labelled codes beyond the answer scales of the item columns ``names`` (:func:`unlabelled_extra_codes`);
+    ``rows``: the data-row numbers of ``frame``'s rows."""
+    found = []
+    for column in names:
+        labels = value_labels.get(column)
+        if not labels or column not in frame.columns or not pd.api.types.is_numeric_dtype(frame[column]):
+            continue
+        values = frame[column].to_numpy(dtype=float, na_value=np.nan)
+        for code, text in unlabelled_extra_codes(values, labels):
+            scale = sorted(float(k) for k, v in labels.items()
+                           if isinstance(k, (int, float)) and float(k) != code and not says_no_answer(v, True))
+            found.append(BeyondScale(column, code, text, tuple(int(r) for r in rows[values == code]),
+                                     (scale[0], scale[-1])))
+    return tuple(found)
 
 
 def declared_missing(frame: pd.DataFrame, ranges: dict, value_labels: dict) -> tuple[pd.DataFrame, tuple[NonAnswer, ...]]:

@@ -18,11 +18,13 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import TYPE_CHECKING
 
+import numpy as np
 import pandas as pd
 
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
 from cfa_tool.errors import DataError, printable
 from cfa_tool.input_files import check_input_path, input_bytes, utf16_text
+from cfa_tool.numbers import number
 
 if TYPE_CHECKING:
     from cfa_tool.data.moments import ItemColumns
@@ -53,13 +55,17 @@ class LoadedData:
     sheets: tuple[str, ...] = ()
     #: values the file itself marks as no answer (data.non_answers.NonAnswer), read as missing on reading
     non_answers: tuple = ()
+    #: what reading found that every view names first, though the rows are analysed as the file holds them:
+    #: objects with ``caution(source)`` and ``advice()`` (data.non_answers.BeyondScale, HiddenRows)
+    cautions: tuple = ()
 
     def sheet_hint(self) -> str:
         """Words for a message about a missing column: which sheet of a workbook of several was read."""
         if len(self.sheets) < 2:
             return ""
         others = ", ".join(f"'{printable(s)}'" for s in self.sheets[1:])
-        return (f"; its first sheet, '{printable(self.sheets[0])}', was read, and the workbook also has {others}: "
+        return (f"; its first sheet not hidden, '{printable(self.sheets[0])}', was read, and the workbook also has "
+                f"{others}: "
                 f"name the sheet of the data with --sheet")
 
 
@@ -84,8 +90,9 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         notes: list[str] = []
         names: list[pd.Series] = []
         sheets: list[str] = []
-        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets), str(path), notes=tuple(notes),
-                            row_names=names[0] if names else None,
+        hidden: list = []
+        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden), str(path), notes=tuple(notes),
+                            row_names=names[0] if names else None, cautions=tuple(hidden),
                             sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else ())
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _read_labelled(path)
@@ -97,6 +104,10 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = LoadedData(read_table(path, notes, names, text_columns), str(path), notes=tuple(notes),
                             row_names=names[0] if names else None)
     loaded = _composed_names(loaded)
+    if suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES:  # delimited text: read_table read them so
+        loaded = replace(loaded, frame=blank_text_as_missing(loaded.frame, text_columns))
+    if suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
+        loaded = _numbers_from_text(loaded, text_columns)
     frame, written = written_non_answers(loaded.frame, text_columns)  # before the codes: 'refused' made a column text
     read_as_none = []  # (column, cells) that --missing-codes turned into no answer
     if missing_codes:
@@ -113,6 +124,85 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     if missing_codes:
         loaded = replace(loaded, notes=loaded.notes + (_missing_codes_note(path, missing_codes, read_as_none),))
     return loaded
+
+
+def blank_text_as_missing(frame: pd.DataFrame, keep_text: tuple[str, ...] = (), markers: tuple[str, ...] = (),
+                          decimal_comma: bool = False) -> pd.DataFrame:
+    """``frame`` with text cells that are empty or hold only spaces read as no answer, as an empty cell of a CSV file
+    is: SPSS and Stata text variables write no answer as '', a spreadsheet cell may hold a space, a data frame may
+    hold ''.  Read so at once, every reader of the rows (the check, the choice of the missing-data handling, the fit)
+    sees the same gaps.  ``markers``: the markers of no answer (MISSING_MARKERS) also when written with spaces
+    around them ('NA '), for delimited text, whose parser knows them only as written.  A column left with numbers only
+    becomes a column of numbers, as the same data in a CSV file are read (for delimited text, also numbers written as
+    text, with ``decimal_comma``); ``keep_text`` (id columns) are left as written.  The frame is copied only when a
+    cell changes."""
+    out = frame
+    for position, column in enumerate(frame.columns):
+        series = frame.iloc[:, position]
+        if column in keep_text or not _text_dtype(series):
+            continue
+        if isinstance(series.dtype, pd.StringDtype):  # text only: compared at once
+            stripped = series.str.strip()
+            blank = ((stripped == "") | stripped.isin(markers)).fillna(False).to_numpy(dtype=bool)
+        else:
+            blank = np.fromiter((isinstance(v, str) and (not v.strip() or (bool(markers) and v.strip() in markers))
+                                 for v in series.to_numpy(dtype=object)), dtype=bool, count=len(series))
+        if not blank.any():
+            continue
+        values = series.to_numpy(dtype=object, na_value=None)
+        kept = series.where(~blank)
+        rest = values[~blank & pd.notna(kept).to_numpy()]
+        if all(isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, (bool, np.bool_))
+               for v in rest):
+            kept = pd.to_numeric(kept).astype(float)
+        elif markers and all(isinstance(v, str) and number(v, decimal_comma) is not None for v in rest):
+            kept = kept.map(lambda v: number(v, decimal_comma) if isinstance(v, str) else v).astype(float)
+        if out is frame:
+            out = frame.copy()
+        out.isetitem(position, kept)
+    return out
+
+
+def _text_dtype(column: pd.Series) -> bool:
+    """Whether a column holds Python objects or text (pandas' object and string types)."""
+    return column.dtype == object or isinstance(column.dtype, pd.StringDtype)
+
+
+def _numbers_from_text(loaded: LoadedData, keep_text: tuple[str, ...]) -> LoadedData:
+    """Text variables of an SPSS or Stata file that hold only numbers, each written as the number's plain spelling
+    ('3', '4.5'; not '007' or '3.0', which stay text), read as numbers, and their value labels keyed by those
+    numbers: survey exports write answers as text variables, and read as text their labels and their codes of no
+    answer would not meet the numbers analysed.  ``keep_text`` (id columns) are left as written."""
+    frame, labels = loaded.frame, loaded.value_labels
+    changed = {}
+    for column in frame.columns:
+        series = frame[column]
+        if column in keep_text or not _text_dtype(series):
+            continue
+        rest = series.dropna().tolist()
+        if not rest or not all(isinstance(v, str) and _plain_number(v) is not None for v in rest):
+            continue
+        coded = labels.get(column, {})
+        if any(isinstance(code, str) and _plain_number(code) is None for code in coded):
+            continue  # a label of a code that is not a number: the column is read as written
+        changed[column] = series.map(lambda v: _plain_number(v) if isinstance(v, str) else v).astype(float)
+    if not changed:
+        return loaded
+    frame = frame.copy()
+    for column, values in changed.items():
+        frame[column] = values
+    labels = {k: ({(_plain_number(c) if isinstance(c, str) else c): t for c, t in v.items()} if k in changed else v)
+              for k, v in labels.items()}
+    return replace(loaded, frame=frame, value_labels=labels)
+
+
+def _plain_number(text: str) -> float | None:
+    """The number a text writes in its plain spelling ('3', '-2', '4.5'), or None ('007', '3.0', '1e3', 'x')."""
+    value = number(text)
+    if value is None or not np.isfinite(value):
+        return None
+    shown = str(int(value)) if value.is_integer() else repr(value)
+    return value if text.strip() == shown else None
 
 
 def _missing_codes_note(path: Path, codes, read_as_none: list[tuple[str, int]]) -> str:
@@ -143,7 +233,7 @@ def _composed_names(loaded: LoadedData) -> LoadedData:
 
 
 def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list | None = None,
-                sheets_out: list | None = None) -> pd.DataFrame:
+                sheets_out: list | None = None, hidden_out: list | None = None) -> pd.DataFrame:
     try:
         import openpyxl
     except ImportError:  # pragma: no cover - a declared dependency
@@ -153,17 +243,20 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     except Exception as exc:  # openpyxl raises many kinds for damaged files
         raise DataError(f"'{path}' cannot be read as an Excel workbook ({type(exc).__name__})") from None
     names = book.sheetnames
-    if sheets_out is not None:
-        sheets_out.extend(names)
     if sheet is not None and not isinstance(sheet, str):
         raise DataError(f"the sheet must be given by its name (text), not {type(sheet).__name__}")
-    if sheet is None:
-        ws = book[names[0]]
+    hidden = [n for n in names if getattr(book[n], "sheet_state", "visible") != "visible"]  # hidden, very hidden
+    if sheet is None:  # the first sheet the workbook shows: a hidden one is an old draft or a lookup table
+        ws = book[next((n for n in names if n not in hidden), names[0])]
     elif sheet in names:
         ws = book[sheet]
     else:
         raise DataError(f"'{path}' has no sheet '{printable(sheet)}' (sheets: {printable(', '.join(names))})")
+    if sheets_out is not None:  # the sheet read first
+        sheets_out.extend([ws.title] + [n for n in names if n != ws.title])
     where = f"{path} (sheet '{printable(ws.title)}')"
+    if len(names) > 1:
+        notes.append(_sheet_note(path, ws.title, names, hidden, sheet is not None))
     if not isinstance(ws, openpyxl.worksheet.worksheet.Worksheet):
         raise DataError(f"{where} is a chart, not a table of data; choose a sheet of data with --sheet "
                         f"(sheets: {printable(', '.join(names))})")
@@ -204,7 +297,14 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
             raise DataError(f"{path} (sheet '{ws.title}'): row {number} has a value in column {beyond[0]}, which has "
                             f"no name in the header row ({_header_taken(f'row {first + 1}')})")
     _check_merged_answers(ws, where, header, first + 2, skipped)
-    body = [list(r[:width]) for r in rows[1:] if any(v is not None for v in r[:width])]
+    kept = [k for k, r in enumerate(rows[1:], start=first + 2) if any(v is not None for v in r[:width])]
+    body = [list(rows[k - first - 1][:width]) for k in kept]
+    hidden_rows = {k for k, dimension in ws.row_dimensions.items() if dimension.hidden}
+    if hidden_rows and hidden_out is not None:  # a filter, or rows hidden by hand: the file holds them all the same
+        data_rows = tuple(n for n, k in enumerate(kept, start=1) if k in hidden_rows)
+        if data_rows:
+            hidden_out.append(HiddenRows(ws.title, data_rows, len(kept), ws.auto_filter.ref is not None,
+                                         _filter_kept(ws, header, skipped)))
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
     found = dict.fromkeys(MISSING_MARKERS, 0)
@@ -217,6 +317,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if any(v is None for r in body for v in r):
         _check_uncomputed_formulas(path, ws.title, first)
     frame = pd.DataFrame(body, columns=header)
+    _check_header_rows(frame, where, False)
     if row_names:
         frame = _split_row_names(frame, names_out)
         notes.append(f"{path} (sheet '{ws.title}'): the first column has no name in the header and was read as row "
@@ -225,6 +326,79 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
 
 
 MAX_EXCEL_CELLS = 20_000_000
+
+
+@dataclass(frozen=True)
+class HiddenRows:
+    """Rows of a sheet that the workbook hides (by a filter or by hand), read and analysed as the file holds them
+    but named first: a researcher who filtered the sheet to some rows sees only those.  ``rows``: data-row
+    numbers (1 = the first row under the header)."""
+
+    sheet: str
+    rows: tuple[int, ...]
+    of: int  # rows of data in the sheet
+    filtered: bool  # the sheet has a filter
+    keep: str | None = None  # the --keep filter that keeps the rows the workbook's filter shows, when it is plain
+    filtered_out: int = 0  # hidden rows the row filters (--keep) left out
+
+    def among(self, kept) -> HiddenRows | None:
+        """The hidden rows that row filters kept (``kept``: data-row numbers), or None when they kept none."""
+        rows = tuple(r for r in self.rows if r in kept)
+        return replace(self, rows=rows, filtered_out=self.filtered_out + len(self.rows) - len(rows)) if rows else None
+
+    def caution(self, source: str) -> str:
+        name = source.replace("\\", "/").rsplit("/", 1)[-1]
+        shown = ", ".join(str(r) for r in self.rows[:5]) + (f" and {len(self.rows) - 5} more" if len(self.rows) > 5
+                                                             else "")
+        how = "by its filter" if self.filtered else "as hidden rows"
+        hidden = len(self.rows) + self.filtered_out
+        left = f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)}" \
+            if self.filtered_out else "; they"
+        return (f"{name} (sheet '{printable(self.sheet)}') hides {hidden} of its {self.of} rows of data {how} "
+                f"(data row{'s' if len(self.rows) != 1 else ''} {shown}){left} were analysed with the others, as the "
+                f"file holds them.")
+
+    def advice(self) -> str:
+        keep = f" (here --keep \"{printable(self.keep)}\")" if self.keep else ""
+        return (f"If the hidden rows are not to be analysed, leave them out with a --keep filter on the column the "
+                f"workbook's filter uses{keep}, or delete them from a copy of the file.")
+
+    def to_dict(self) -> dict:
+        return {"sheet": self.sheet, "rows": list(self.rows), "of": self.of, "filtered": self.filtered,
+                "keep": self.keep}
+
+
+def _filter_kept(ws, header: list, skipped: int) -> str | None:
+    """The --keep filter equal to a sheet's filter when it keeps one value of one column ('district == \'north\''),
+    else None."""
+    try:
+        columns = list(ws.auto_filter.filterColumn or ())
+        if len(columns) != 1 or columns[0].filters is None or len(columns[0].filters.filter or ()) != 1:
+            return None
+        from openpyxl.utils import range_boundaries
+
+        position = int(columns[0].colId) + range_boundaries(ws.auto_filter.ref)[0] - 1 - skipped
+        value = str(columns[0].filters.filter[0])
+    except (AttributeError, TypeError, ValueError):
+        return None
+    if not 0 <= position < len(header) or not header[position] or "'" in value:
+        return None
+    name = header[position]
+    shown = value if number(value) is not None else f"'{value}'"
+    return f"{name} == {shown}" if name.isidentifier() else None
+
+
+def _sheet_note(path: Path, read: str, names: list[str], hidden: list[str], named: bool) -> str:
+    """Which sheet of a workbook of several was analysed, and which sheets the workbook hides."""
+    others = [n for n in names if n != read]
+    listed = ", ".join(f"'{printable(n)}'" + (" (hidden)" if n in hidden else "") for n in others)
+    if named:
+        how = "as named with --sheet" + ("; the workbook hides this sheet" if read in hidden else "")
+    elif hidden and names.index(read) > 0:
+        how = "the first sheet the workbook shows (hidden sheets are not read unless named with --sheet)"
+    else:
+        how = "the first sheet; name another with --sheet"
+    return f"{path}: the sheet '{printable(read)}' was analysed, {how}; the workbook also has {listed}"
 
 
 def _check_merged_answers(ws, where: str, header: list, body_row: int, skipped: int) -> None:
@@ -456,9 +630,12 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     frame.columns = header
     if len(frame) == 0:
         raise DataError(f"data file '{path}' has a header but no rows of data")
+    frame = blank_text_as_missing(frame, text_columns, MISSING_MARKERS, decimal == ",")  # 'NA ' is 'NA'
     raw = _RawCells(text[body_start:], delimiter, widest, len(header))
+    _check_header_rows(frame, str(path), decimal == ",", text_columns)
     if decimal == ",":
         _check_dotted_thousands(frame, raw, header, path, notes)
+        _check_decimal_points(frame, str(path), text_columns)
     _keep_number_spellings(frame, raw)
     _note_missing_markers(raw, header, path, notes)
     empty = widest - len(header)
@@ -471,6 +648,88 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         if notes is not None:
             notes.append(f"{path}: the first column has no name in the header and was read as row names, not as data")
     return frame
+
+
+def _as_numbers(column: pd.Series, decimal_comma: bool) -> pd.Series:
+    """The cells of a column as numbers (NaN where a cell is missing or not a number), a decimal comma read as
+    the point when ``decimal_comma``."""
+    if column.dtype.kind in "iuf":
+        return column.astype(float)
+    cells = column.map(lambda v: v.strip() if isinstance(v, str) else v)
+    if decimal_comma:
+        cells = cells.map(lambda v: v.replace(",", ".", 1) if isinstance(v, str) and "." not in v else v)
+    return pd.to_numeric(cells.where(cells.map(lambda v: not isinstance(v, bool))), errors="coerce")
+
+
+MAX_HEADER_ROWS = 3  # further header rows a survey platform writes under the column names (question texts, ids)
+
+
+def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, text_columns=()) -> None:
+    """Rows right under the header that hold text in every column holding numbers below them: survey platforms
+    export the question texts and import ids as a second and third header row.  Read as answers they make every
+    item column text; the remedy is to delete them, not to recode the answers."""
+    if len(frame) <= MAX_HEADER_ROWS + 1:
+        return
+
+    def text(v) -> bool:
+        return isinstance(v, str) and v.strip() != "" and number(v, decimal_comma) is None
+
+    top, below = frame.iloc[0].tolist(), frame.iloc[MAX_HEADER_ROWS].tolist()
+    if sum(text(a) and not text(b) for a, b in zip(top, below)) < 2:  # the common case, at the cost of two rows
+        return
+    leads = []
+    for position in range(frame.shape[1]):
+        column = frame.iloc[:, position]
+        if not _text_dtype(column) or frame.columns[position] in text_columns:
+            continue
+        numbers = _as_numbers(column, decimal_comma)
+        present = column.notna().to_numpy() & column.map(lambda v: not (isinstance(v, str) and not v.strip())).to_numpy()
+        text = present & numbers.isna().to_numpy()
+        lead = 0
+        while lead < MAX_HEADER_ROWS and text[lead]:
+            lead += 1
+        if lead == 0 or text[lead:].any() or not present[lead:].any():
+            continue  # numbers from the first row on, or text further down: a column of answers or of text
+        leads.append((lead, position))
+    if len(leads) < 2 or len({lead for lead, _ in leads}) != 1:
+        return
+    lead, position = leads[0]
+    example = printable(str(frame.iloc[0, position]).strip())[:60]
+    rows = "data row 1" if lead == 1 else f"data rows 1-{lead}"
+    look = "looks like a further header row" if lead == 1 else "look like further header rows"
+    raise DataError(f"{where}: {rows} under the column names {look} (text such as '{example}' in every column "
+                    f"that holds numbers below {'it' if lead == 1 else 'them'}), as survey platforms export question "
+                    f"texts and import ids; delete {'it' if lead == 1 else 'them'}, keeping the one row of column "
+                    f"names, in a copy of the file")
+
+
+_COMMA_NUMBER = re.compile(r"[+-]?\d+,\d+")
+_POINT_NUMBER = re.compile(r"[+-]?\d*\.\d+")
+
+
+def _check_decimal_points(frame: pd.DataFrame, where: str, text_columns=()) -> None:
+    """In a file with decimal commas, a column of numbers in which some rows were typed with decimal points
+    ('3.5' beside '4,5') is read as text; the error names the row that differs, not the first cell."""
+    for position in range(frame.shape[1]):
+        column = frame.iloc[:, position]
+        if not _text_dtype(column) or frame.columns[position] in text_columns:
+            continue
+        cells = column.map(lambda v: v.strip() if isinstance(v, str) else v).dropna()
+        cells = cells[cells.map(lambda v: isinstance(v, str) and v != "")]
+        if cells.empty:
+            continue
+        commas = cells.str.fullmatch(_COMMA_NUMBER.pattern)
+        points = cells.str.fullmatch(_POINT_NUMBER.pattern)
+        whole = cells.str.fullmatch(r"[+-]?\d+")
+        if not commas.any() or not points.any() or not (commas | points | whole).all():
+            continue
+        first = cells.index[points.to_numpy().argmax()]
+        row = int(frame.index.get_loc(first)) + 1
+        example = cells[commas].iloc[0]
+        raise DataError(f"{where}: column '{printable(frame.columns[position])}' holds "
+                        f"'{printable(cells[first])}' in data row {row}, written with a '.', while the file writes "
+                        f"decimals with commas (such as '{printable(example)}'); write the decimals of that row with "
+                        f"commas, as the others are (and numbers without thousands separators)")
 
 
 def _decimal_mark(text: str, delimiter: str) -> str:

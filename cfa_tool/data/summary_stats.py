@@ -168,6 +168,7 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
                             f"follow the header's order ('{printable(names[len(rows)])}' here)")
         if delimiter != ",":  # a decimal comma goes with semicolons and tabs
             cells = [c.replace(",", ".") for c in cells]
+        _check_empty_cells(cells[1:], names, len(rows), where)
         rows.append((_numbers(cells[1:], where), number_))
     if "n" not in extra:
         raise DataError(f"{path}: the file has no 'n' row (the number of observations), e.g. 'n,301'")
@@ -200,6 +201,25 @@ def read_summary_file(path: str | Path) -> tuple[SampleMoments, list[str]]:
     matrix = _assemble(rows, p, str(path))
     return summary_moments(names, matrix, n_obs, kind, vector("sd"), vector("mean"), divisor, str(path),
                            tuple(line for _, line in rows), extra["sd"][1] if "sd" in extra else None)
+
+
+def _check_empty_cells(cells: list[str], names: list[str], row: int, where: str) -> None:
+    """An empty cell in a matrix row is an error naming its column; empty cells before the diagonal, with numbers
+    from it on, are an upper triangle, said so (row ``row``, 0-based)."""
+    empty = [k for k, c in enumerate(cells) if not c.strip()]
+    if not empty:
+        return
+    if row > 0 and empty == list(range(row)) and len(cells) == len(names):
+        columns = (f"column '{printable(names[0])}'" if row == 1 else
+                   f"columns '{printable(names[0])}' to '{printable(names[row - 1])}'")
+        raise DataError(f"{where}: row {row + 1} of the matrix leaves its cells before the diagonal empty ({columns}): "
+                        f"the matrix looks like an upper "
+                        f"triangle, which is not read; write the lower triangle (row k holds k numbers, ending with "
+                        f"the diagonal) or the full matrix")
+    k = empty[0]
+    column = f"column '{printable(names[k])}'" if k < len(names) else f"cell {k + 1}"
+    raise DataError(f"{where}: the cell of {column} in row {row + 1} of the matrix is empty; every cell of a row "
+                    f"up to its last number needs a number")
 
 
 def _assemble(rows: list[tuple[list[float], int]], p: int, source: str) -> np.ndarray:

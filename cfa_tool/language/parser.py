@@ -19,7 +19,7 @@ from lark import Lark, Token, Tree
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
 from cfa_tool.suggest import close_names, dotted_span
-from cfa_tool.errors import Location, ModelError, printable
+from cfa_tool.errors import Location, ModelError, character_names, printable
 from cfa_tool.input_files import input_bytes, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.language.spec import (
     GROUP_EQUALITY_WORDS,
@@ -153,7 +153,8 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
     elif isinstance(exc, UnexpectedCharacters):
         char = exc.char if exc.char not in "\r\n" else "line break"
         char = printable(char)
-        message = f"unexpected character '{char}'"
+        latin = exc.char.isalpha() and unicodedata.name(exc.char, "").startswith("LATIN")
+        message = f"unexpected character '{char}'" + ("" if latin else character_names(exc.char))  # é is seen
         if char == "'":
             message += ' (use double quotes for quoted names and titles)'
         if char.isalpha():  # a letter beyond A-Z: plain names are ASCII

@@ -15,11 +15,11 @@ from cfa_tool.data.groups import split_moments
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.matching import answer_range_notes, check_columns, check_declared_ranges
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
-from cfa_tool.data.non_answers import non_answer_caution
+from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
 from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
-from cfa_tool.data.readers import LoadedData, read_data
+from cfa_tool.data.readers import HiddenRows, LoadedData, blank_text_as_missing, read_data
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
                                          refuse_shared_clusters)
@@ -112,7 +112,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         if sheet is not None:
             raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
                               f"frame; leave the sheet out")
-        frame = data
+        frame = blank_text_as_missing(data)  # '' and '  ' are no answer, as an empty cell of a file is
         if missing_codes:
             frame = frame.mask(frame.isin(list(missing_codes)))
         return LoadedData(frame, "<data frame>")
@@ -157,18 +157,28 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         frame = frame.set_axis(columns, axis=1)
     notes: list[str] = list(loaded.notes)
     filters = [parse_filter(k) for k in keep]
+    cautions = loaded.cautions
     if filters:
         frame, filter_notes = apply_filters(frame, filters, loaded.source, loaded.value_labels)
         notes += filter_notes
+        cautions = kept_cautions(cautions, frame)
     check_columns(spec, columns, loaded.source, loaded.sheet_hint())
     check_declared_ranges(spec, frame, loaded.source, loaded.value_labels)
     values = item_values(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
     notes += answer_range_notes(spec, frame, loaded.source, loaded.value_labels, values)
+    beyond = beyond_scale(frame, spec.observed_names, loaded.value_labels, row_numbers(frame)) \
+        if loaded.value_labels else ()
     frame = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)  # said where used (labels.label_notes)
     items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
-    return spec, replace(loaded, frame=frame, read_frame=loaded.frame if keep else None,
+    return spec, replace(loaded, frame=frame, cautions=cautions + beyond, read_frame=loaded.frame if keep else None,
                          row_filters=tuple(f.text for f in filters), items=items,
                          odd_values=odd_values(frame, spec.observed_names, row_numbers(frame), items.values)), notes
+
+
+def kept_cautions(cautions: tuple, frame: pd.DataFrame) -> tuple:
+    """``LoadedData.cautions`` of the rows row filters kept in ``frame``: rows a workbook hides count when kept."""
+    kept = set(row_numbers(frame).tolist())
+    return tuple(c for c in (c.among(kept) if isinstance(c, HiddenRows) else c for c in cautions) if c)
 
 
 def _codes_as_labels(frame: pd.DataFrame, value_labels: dict, items) -> pd.DataFrame:
@@ -346,16 +356,17 @@ def odd_value_problems(loaded: LoadedData) -> tuple:
                                 loaded.items.names if loaded.items is not None else None)
     return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
         Problem(ProblemKind.VALUES_NOT_ANSWERS, (), None, odd.caution(loaded.source), odd.advice())
-        for odd in loaded.odd_values)
+        for odd in loaded.cautions + loaded.odd_values)
 
 
-def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answers: tuple = ()) -> LoadedData:
+def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answers: tuple = (),
+             cautions: tuple = ()) -> LoadedData:
     """``frame`` as loaded data holding the values among the columns ``names`` that look like no answers, and
     those of ``non_answers`` (``LoadedData.non_answers``, read as missing) in them, for the commands that read
     their data without :func:`read_inputs_with_notes` (replicate, explore): their cautions
     (:func:`odd_value_problems`) and :func:`odd_values_named` then work as for every other command."""
     return LoadedData(frame, source, odd_values=odd_values(frame, tuple(names), row_numbers(frame)),
-                      non_answers=tuple(f for f in non_answers if f.column in set(names)))
+                      non_answers=tuple(f for f in non_answers if f.column in set(names)), cautions=cautions)
 
 
 def with_odd_values(result, loaded: LoadedData):

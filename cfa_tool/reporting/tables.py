@@ -8,6 +8,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from cfa_tool.assessment.reliability import Keying
+from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, WeightKind
 from cfa_tool.language.names import names_text
@@ -891,7 +892,8 @@ def label_tables(result) -> list[ReportTable]:
                           [("Variable", "l"), ("Label", "l")], [[k, v] for k, v in names.items()]))
     values = labels.get("values", {})
     if values:
-        rows = [[k, "; ".join(f"{code:g} = {text}" for code, text in v.items())] for k, v in values.items()]
+        # codes are numbers, or text in a text variable ('a'), or Stata's '.a'
+        rows = [[k, "; ".join(f"{label_text(code)} = {text}" for code, text in v.items())] for k, v in values.items()]
         out.append(_table("value_labels", "Labels of the values (from the data file)",
                           [("Variable", "l"), ("Codes", "l")], rows))
     return out

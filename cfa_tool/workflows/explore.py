@@ -290,6 +290,8 @@ COLUMN_ROLE_WORDS = {
     "strata": ("stratum", "strata"),
     "ids": ("id", "ids", "identifier"),
     "groups": ("group", "grp"),
+    # the records a survey platform adds to an export: how far and how long a respondent answered, where from
+    "survey records": ("progress", "duration", "latitude", "longitude", "locationlatitude", "locationlongitude"),
 }
 _ROLE_OF_WORD = {word: role for role, words in COLUMN_ROLE_WORDS.items() for word in words}
 
@@ -380,7 +382,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
         roles = [c for c in numeric if c not in ids and column_role(c) is not None]
         coded = [c for c in labelled_codes(frame, loaded.value_labels) if c in numeric and c not in ids + roles
                  and own_labels(c, loaded.value_labels)]
-        chosen = tuple(c for c in numeric if c not in ids and c not in roles and c not in coded)
+        constant = [c for c in numeric if c not in ids + roles + coded and frame[c].nunique(dropna=True) <= 1]
+        chosen = tuple(c for c in numeric if c not in ids and c not in roles and c not in coded and c not in constant)
         notes.append(f"Items: every column of {source} that holds numbers ({len(chosen)}); choose them with --items."
                      + (f" Left out as row numbers or ids (every value a different whole number): "
                         f"{', '.join(printable(c) for c in ids)}." if ids else "")
@@ -388,8 +391,10 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
                         f"department's do; the items share their answer scale's labels): "
                         f"{', '.join(printable(c) for c in coded)} (name them in --items to explore them)."
                         if coded else "")
-                     + (" Left out by their names, as columns of the sampling design, ids or groups rather than "
-                        "answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
+                     + (f" Left out as constant (one value in every row, which says nothing of the other "
+                        f"answers): {', '.join(printable(c) for c in constant)}." if constant else "")
+                     + (" Left out by their names, as columns of the sampling design, ids, groups or the survey's "
+                        "records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
                         + " (name them in --items to explore them)." if roles else "")
                      + _text_columns_phrase(frame, numeric)
                      + " Check that no other column (age, grade, a code) is among the items.")
@@ -421,7 +426,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
                               f"{len(target_file.factors)} factor columns")
     ordinal_items = _ordinal_items(ordinal, chosen)
     # values that look like no answers among the rows read (both halves of a split): first in every view
-    data_problems = api.odd_value_problems(api.screened(frame, tuple(chosen), source, loaded.non_answers))
+    data_problems = api.odd_value_problems(api.screened(frame, tuple(chosen), source, loaded.non_answers,
+                                                          api.kept_cautions(loaded.cautions, frame)))
     halves = None
     if split is not None:
         split = options.seed(split)

@@ -264,7 +264,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     for frame, source in ((cal_frame, cal_source), (val_frame, val_source)):
         check_columns(spec, [str(c) for c in frame.columns], source)
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
-    screens = [screened(loaded.frame, spec.observed_names, loaded.source, loaded.non_answers) for loaded in read]
+    screens = [screened(loaded.frame, spec.observed_names, loaded.source, loaded.non_answers, loaded.cautions) for loaded in read]
     with odd_values_named(next((s for s in screens if s.odd_values), screens[0])):
         if ordinal_items:
             result = replicate_ordinal(spec, _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise),
@@ -289,7 +289,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     loaded = load_data(data, sheet, missing_codes)
     frame, source = loaded.frame, loaded.source
     check_columns(spec, [str(c) for c in frame.columns], source)
-    screen = screened(frame, spec.observed_names, source, loaded.non_answers)
+    screen = screened(frame, spec.observed_names, source, loaded.non_answers, loaded.cautions)
     with odd_values_named(screen):
         pair, halves = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)
     problems = odd_value_problems(screen)

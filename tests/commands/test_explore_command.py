@@ -200,8 +200,8 @@ def test_design_id_and_group_columns_are_not_taken_for_items_and_are_named(hs_da
                      replications=10)
     assert result.to_dict()["items"] == [f"x{i}" for i in range(1, 10)]
     note = next(n for n in result.notes if n.startswith("Items:"))
-    assert ("Left out by their names, as columns of the sampling design, ids or groups rather than answers: "
-            "final_weight (weights), psu (clusters), grp (groups) (name them in --items to explore them).") in note
+    assert ("Left out by their names, as columns of the sampling design, ids, groups or the survey's records rather "
+            "than answers: final_weight (weights), psu (clusters), grp (groups) (name them in --items to explore them).") in note
     assert [column_role(n) for n in ("w", "w1", "wt 2023", "respondent_id", "stratum", "wlb2")] == \
         ["weights", None, "weights", "ids", "strata", None]
     named = explore(data, items="x1..x9, final_weight", factors=3, replications=10)  # named: explored
