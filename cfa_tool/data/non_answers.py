@@ -41,6 +41,12 @@ NON_ANSWER_PHRASES = frozenset({
     "rather not say", "not stated", "no data", "question not asked",
 })
 
+#: phrases that some answer scales use for their middle answer ("Agree / Not sure / Disagree"): a code so labelled
+#: is no answer only when it stands beyond the scale's other labelled answers (9 'Not sure' after 1-5), never when
+#: it lies between them (3 'Not sure' between 1 'Disagree' and 5 'Agree' is an answer, and is analysed as one)
+MIDDLE_PHRASES = frozenset({"not sure", "unsure", "no opinion", "can t say", "cannot say", "can not say", "can t tell",
+                            "cannot tell"})
+
 SHOWN = 6  # columns a caution names before 'and N more'
 
 
@@ -107,7 +113,7 @@ def labelled_non_answers(frame: pd.DataFrame, value_labels: dict, skip: tuple[fl
         numeric = pd.api.types.is_numeric_dtype(frame[column])
         codes = {code: text for code, text in labels.items()
                  if isinstance(code, float if numeric else str) and code not in skip
-                 and says_no_answer(text, explained=True)}
+                 and says_no_answer(text, explained=True) and not (numeric and _middle_answer(code, text, labels))}
         if not codes:
             continue
         if numeric:
@@ -126,6 +132,16 @@ def labelled_non_answers(frame: pd.DataFrame, value_labels: dict, skip: tuple[fl
                 out = frame.copy()
             out[column] = frame[column].where(~hit)
     return out, tuple(found)
+
+
+def _middle_answer(code: float, text: str, labels: dict) -> bool:
+    """Whether a code labelled with a :data:`MIDDLE_PHRASES` phrase lies between the lowest and highest of the
+    other labelled answers, and so is an answer of the scale."""
+    if _plain(text) not in MIDDLE_PHRASES:
+        return False
+    answers = [float(k) for k, v in labels.items() if isinstance(k, (int, float)) and k != code
+               and not says_no_answer(v, explained=True)]
+    return len(answers) >= 2 and min(answers) < code < max(answers)
 
 
 def unlabelled_extra_codes(column: np.ndarray, labels: dict) -> list[tuple[float, str]]:

@@ -244,3 +244,24 @@ def test_missing_codes_say_how_many_cells_they_read_as_no_answer(tmp_path):
                     "(a1 2, a3 1)"]
     none = cfa_tool.fit("factor f: a1, a2, a3, a4\n", path, missing_codes=[-99])
     assert "coded.csv: no cell holds any of the codes given with --missing-codes (-99)" in none.warnings
+
+
+def test_not_sure_between_the_answers_is_an_answer_and_beyond_them_is_none(tmp_path, answers):
+    # 'Not sure' is the middle answer of some scales (0 'never', 1 'not sure', 2 'often'...) and the no-answer code
+    # of others (9 'Not sure' after the scale): read as missing only in the second case ("defaults keep data"; a
+    # merge found the wider no-answer vocabulary reading a middle 'Not sure' as missing)
+    import pyreadstat
+
+    middle = tmp_path / "middle.dta"
+    pyreadstat.write_dta(answers, str(middle),
+                         variable_value_labels={c: {0: "never", 1: "Not sure", 2: "often", 3: "always"} for c in ITEMS})
+    kept = cfa_tool.fit(MODEL, middle)
+    counted = dict(zip(ITEMS, kept.groups[0].data.categories))
+    assert dict(counted["c1"])[1.0] == int((answers["c1"] == 1).sum()) > 0
+    assert not any(p.kind is ProblemKind.VALUES_READ_AS_MISSING for p in kept.problems)
+    beyond = tmp_path / "beyond.dta"
+    coded = answers.copy()
+    coded.loc[[4, 9], "c1"] = 9
+    pyreadstat.write_dta(coded, str(beyond), variable_value_labels={c: {**SCALE, 9: "Not sure"} for c in ITEMS})
+    read = cfa_tool.fit(MODEL, beyond)
+    assert read.problems[0].kind is ProblemKind.VALUES_READ_AS_MISSING and "9 'Not sure'" in read.problems[0].explanation
