@@ -168,10 +168,12 @@ def srmr(groups: list[tuple[np.ndarray, np.ndarray, int]], correlations: bool = 
     return float(sum(g[2] / n * v for g, v in zip(groups, values))), values
 
 
-def normal_log_likelihood(S: np.ndarray, sigma: np.ndarray, n_obs: int, mean_dev: np.ndarray | None = None) -> float:
-    """Log-likelihood of the normal model, divisor-N S; means saturated unless ``mean_dev`` (m - mu) is given."""
+def normal_log_likelihood(S: np.ndarray, sigma: np.ndarray, n_obs: int, mean_dev: np.ndarray | None = None,
+                          inverse: tuple[np.ndarray, float] | None = None) -> float:
+    """Log-likelihood of the normal model, divisor-N S; means saturated unless ``mean_dev`` (m - mu) is given.
+    ``inverse``: (Sigma^-1, log|Sigma|) when the caller has them (the estimation's factorisation at the estimates)."""
     p = S.shape[0]
-    found = spd_inverse(sigma)
+    found = spd_inverse(sigma) if inverse is None else inverse
     if found is None:
         return float("nan")
     inverse, logdet = found
@@ -181,23 +183,28 @@ def normal_log_likelihood(S: np.ndarray, sigma: np.ndarray, n_obs: int, mean_dev
     return float(-0.5 * n_obs * (p * np.log(2 * np.pi) + logdet + trace))
 
 
-def baseline_chi_square(S: np.ndarray, n_obs: int) -> tuple[float, int]:
+def baseline_chi_square(S: np.ndarray, n_obs: int, log_det: float | None = None) -> tuple[float, int]:
+    """The independence model's chi-square N (sum log s_ii - log|S|) and its df; ``log_det``: log|S| when the caller
+    has it."""
     p = S.shape[0]
-    logdet = log_det_pd(S)
+    logdet = log_det_pd(S) if log_det is None else log_det
     if logdet is None:
         logdet = np.linalg.slogdet(S)[1]
     return float(n_obs * (np.log(S.diagonal()).sum() - logdet)), p * (p - 1) // 2
 
 
-def normal_theory_parts(groups: list[tuple[np.ndarray, np.ndarray, int, np.ndarray | None]]) -> tuple[float, int, float]:
+def normal_theory_parts(groups: list[tuple[np.ndarray, np.ndarray, int, np.ndarray | None]],
+                        known: list[tuple[tuple[np.ndarray, float] | None, float]] | None = None) -> tuple[float, int, float]:
     """(baseline chi-square, its df, log-likelihood) of complete-data ML from each group's
-    (S, Sigma, N_g, m - mu or None without a mean structure)."""
+    (S, Sigma, N_g, m - mu or None without a mean structure); ``known``: each group's ((Sigma^-1, log|Sigma|),
+    log|S|) when the estimation has factorised both already (the same numbers, not computed again)."""
     base_chi, base_df, loglik = 0.0, 0, 0.0
-    for S, sigma, n, dev in groups:
-        c, d = baseline_chi_square(S, n)
+    for g, (S, sigma, n, dev) in enumerate(groups):
+        inverse, log_det_s = known[g] if known is not None else (None, None)
+        c, d = baseline_chi_square(S, n, log_det_s)
         base_chi += c
         base_df += d
-        loglik += normal_log_likelihood(S, sigma, n, dev)
+        loglik += normal_log_likelihood(S, sigma, n, dev, inverse)
     return base_chi, base_df, loglik
 
 

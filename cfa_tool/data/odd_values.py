@@ -121,8 +121,9 @@ def _odd_values(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[OddValues
             return ()
         X = frame[names].to_numpy(dtype=float, na_value=np.nan)  # infinite values are judged by no rule
     flagged = [(j, value, code, ranges) for j in _may_stand_out(X) for value, code, ranges in _peeled(X[:, j])]
-    if not flagged:  # the common case: only the rows-of-sums-or-means rule to apply
-        return tuple(_row_findings(X, X, X, np.zeros(X.shape, dtype=bool), _summary_rows(X, X), names, numbers))
+    if not flagged:  # the common case: only the rows-of-sums-or-means rule to apply, and no row far beyond
+        summary = _summary_rows(X, X)
+        return tuple(_row_findings(X, X, X, np.zeros(X.shape, dtype=bool), summary, names, numbers)) if summary else ()
     codes: dict[float, list[int]] = {}  # code -> columns
     code_cells = np.zeros(X.shape, dtype=bool)
     far = np.zeros(X.shape, dtype=bool)

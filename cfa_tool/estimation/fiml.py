@@ -104,6 +104,12 @@ class MissingDataLikelihood:
                 kept[g] = (mats, A, logdet, data.counts / data.n_obs, dev, T)
         return kept[g]
 
+    def matrices(self, theta: np.ndarray, g: int):
+        """Group g's model matrices at theta: those of the point's pieces when kept (as
+        :meth:`cfa_tool.estimation.ml.NormalLikelihood.matrices`), else new ones."""
+        pieces = self._pieces(theta, g)
+        return self.model.matrices(theta, g) if pieces is None else pieces[0]
+
     def _jacobian(self, theta: np.ndarray, g: int):
         """model.jacobian(theta, g), kept with the point's pieces (the information and the Hessian both use it)."""
         self._pieces(theta, g)

@@ -119,6 +119,12 @@ class NormalLikelihood:
             value += float(dev @ sigma_inv @ dev)
         return [mats, NormalParts(sigma_inv, sigma_inv @ target @ sigma_inv, mean_gradient, value, log_det), None]
 
+    def matrices(self, theta: np.ndarray, g: int):
+        """Group g's model matrices at theta: those of the discrepancy's state there (their implied covariance
+        already computed, no second scatter of theta), or new ones where Sigma is not positive definite."""
+        state = self._group_state(theta, g)
+        return self.model.matrices(theta, g) if state is None else state[0]
+
     def sigma_inverse(self, theta: np.ndarray, g: int) -> tuple[np.ndarray, float] | None:
         """(Sigma^-1, log|Sigma|) of group g at theta, from the factorisation the discrepancy used (None when
         Sigma is not positive definite)."""

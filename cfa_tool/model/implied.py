@@ -14,6 +14,7 @@ that of mu a single vector:
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from functools import cached_property
 
@@ -106,6 +107,7 @@ class StructuredModel:
         self.J, self.offset = J, offset
         self.groups = groups
         self._layouts = [self._layout(g) for g in range(self.n_groups)]
+        self._copies = [self._copied_entries(g) for g in range(self.n_groups)]
         # per group: the entries that depend on theta, their rank-two description and their rows of J
         self.active, self.bases, self.active_J = [], [], []
         # where second derivatives of Sigma land, over the active entries and over all entries
@@ -144,6 +146,23 @@ class StructuredModel:
         pieces = tuple((int(starts[k]), int(starts[k + 1]), shape) for k, shape in enumerate(shapes))
         return int(starts[-1]), take, at, pieces
 
+    def _copied_entries(self, group: int) -> tuple[np.ndarray, np.ndarray, np.ndarray] | None:
+        """When each of a group's entries is a fixed value or one parameter itself (a row of J holding a single 1 and
+        no offset; no equality constraints with other coefficients, the usual model): (the buffer of
+        :meth:`_layout` holding the fixed values, the buffer positions of the free entries, their parameters), so that
+        the matrices at theta are the fixed buffer with theta copied in.  offset + J theta gives exactly theta_k there
+        for finite theta (every other term is zero), so the matrices are the same numbers.  None otherwise."""
+        size, take, at, _ = self._layouts[group]
+        J, offset = self._J[group][take], self._offset[group][take]
+        nonzero = J != 0
+        free = nonzero.any(axis=1)
+        if not (nonzero.sum(axis=1) <= 1).all() or not (J[free].max(axis=1) == 1.0).all() or (offset[free] != 0).any():
+            return None
+        buffer = np.zeros(size)
+        buffer[at[~free]] = offset[~free]
+        buffer.setflags(write=False)
+        return buffer, at[free], nonzero[free].argmax(axis=1)
+
     def matrices(self, theta: np.ndarray, group: int = 0) -> ModelMatrices:
         """A group's matrices at theta; at a stack of parameter vectors (R, q), stacks of matrices (R, ...)
         (the implied moments and latent covariances of :class:`ModelMatrices` then have the leading axis too)."""
@@ -152,8 +171,15 @@ class StructuredModel:
             buffer = np.zeros((len(theta), size))
             buffer[:, at] = (self._offset[group] + theta @ self._J[group].T)[:, take]
             return ModelMatrices(*[buffer[:, a:b].reshape((len(theta), *shape)) for a, b, shape in pieces])
-        buffer = np.zeros(size)
-        buffer[at] = (self._offset[group] + self._J[group] @ theta)[take]
+        copied = self._copies[group]
+        if copied is not None and math.isfinite(theta.sum()):  # fixed values with the parameters copied in (a NaN
+            # or infinite parameter spreads through J theta to every entry: the general path keeps that)
+            fixed, where, which = copied
+            buffer = fixed.copy()
+            buffer[where] = theta[which]
+        else:
+            buffer = np.zeros(size)
+            buffer[at] = (self._offset[group] + self._J[group] @ theta)[take]
         mats = ModelMatrices(*[buffer[a:b].reshape(shape) for a, b, shape in pieces])
         if not self.higher_order:  # B has no entry in the table: known without looking at it
             mats.__dict__["has_paths"] = False  # where the cached property keeps its value

@@ -87,7 +87,7 @@ def entry_basis(codes: np.ndarray, rows: np.ndarray, cols: np.ndarray, p: int, m
 def basis_vectors(mats, means: bool) -> tuple[np.ndarray, np.ndarray]:
     """(V = [I, C', G], a = A M) at a group's model matrices (a is zero without a mean structure)."""
     G = mats.G
-    higher_order = mats.B.any()
+    higher_order = mats.has_paths  # known without looking at B for models without paths (StructuredModel.matrices)
     PG = mats.P @ G.T
     C = mats.A @ PG if higher_order else PG
     p, m = G.shape

@@ -12,6 +12,7 @@ not badly conditioned; scaling it to unit diagonal first removes that.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -24,7 +25,7 @@ def cholesky_log_det(A: np.ndarray) -> tuple[np.ndarray, float] | None:
     if info != 0:
         return None
     log_det = 2.0 * float(np.log(factor.diagonal()).sum())
-    if not np.isfinite(log_det):  # NaN anywhere in A reaches the factor's diagonal
+    if not math.isfinite(log_det):  # NaN anywhere in A reaches the factor's diagonal
         return None
     return factor, log_det
 

@@ -209,7 +209,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     values = model.entry_values(theta)
     standardized = np.empty_like(values)
     factors_standardized = np.empty_like(values)
-    mats = [model.matrices(theta, g) for g in range(table.n_groups)]
+    mats = [likelihood.matrices(theta, g) for g in range(table.n_groups)]  # the estimation's, implied moments and all
     for g, (sel, codes, rows, cols, layout) in enumerate(_entry_standardization(model)):
         standardized[sel], factors_standardized[sel] = standardize_entries(mats[g], codes, rows, cols, values[sel],
                                                                            layout)
@@ -250,7 +250,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             dev = gm.mean - mats[g].implied_mean() if means else None
             per_group.append((gm.covariance, mats[g].implied_covariance(), gm.n_obs, dev))
         if likelihood.complete_data:
-            base_chi, base_df, loglik = normal_theory_parts(per_group)
+            # the factorisations of Sigma and S the discrepancy made at the estimates: the same numbers, made once
+            base_chi, base_df, loglik = normal_theory_parts(per_group, [(likelihood.sigma_inverse(theta, g), logdet_s)
+                                                                        for g, logdet_s in enumerate(likelihood.logdet_S)])
         else:
             from cfa_tool.estimation.fiml import fiml_baseline, fiml_log_likelihood
 
