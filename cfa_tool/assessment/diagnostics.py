@@ -15,7 +15,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.assessment.normality import whitened_rows
+from cfa_tool.assessment.normality import Whitened, whitened_rows
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import spd_inverse
 
@@ -43,22 +43,24 @@ def normalized_residuals(S: np.ndarray, sigma: np.ndarray, n_obs: int) -> np.nda
 
 
 def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarray | None, top: int = 10,
-                     whitened: tuple[np.ndarray, float] | None = None,
+                     whitened: Whitened | None = None,
                      inverse: tuple[np.ndarray, float] | None = None) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
     """(rows with the largest Mahalanobis distances, rows with the largest shares of chi-square);
-    ``whitened`` is :func:`~cfa_tool.assessment.normality.whitened_rows` of the rows and ``inverse``
-    (Sigma^-1, log|Sigma|) when the caller has them (the estimation's factorisation of Sigma)."""
+    ``whitened`` is :func:`~cfa_tool.assessment.normality.whitened_rows` of the rows (their distances from the
+    centroid and the centred rows) and ``inverse`` (Sigma^-1, log|Sigma|) when the caller has them (the estimation's
+    factorisation of Sigma)."""
     n, p = rows.shape
-    Y, log_det_S = whitened_rows(rows) if whitened is None else whitened
-    d_sample = np.einsum("ij,ij->i", Y, Y)
+    if whitened is None:
+        whitened = whitened_rows(rows)
+    d_sample = whitened.distances
     if inverse is None:
         inverse = spd_inverse(sigma)
         if inverse is None:
             raise np.linalg.LinAlgError("the implied covariance matrix is not positive definite")
     sigma_inv, log_det_sigma = inverse
-    dev = rows - rows.mean(axis=0)
+    dev = whitened.centred
     d_model = np.einsum("ij,ij->i", dev @ sigma_inv, dev)
-    share = log_det_sigma - log_det_S + d_model - d_sample
+    share = log_det_sigma - whitened.log_det + d_model - d_sample
     chosen = np.concatenate([np.argsort(-d_sample, kind="stable")[:top], np.argsort(-share, kind="stable")[:top]])
     numbers = (chosen + 1 if row_numbers is None else row_numbers[chosen]).tolist()
     found = [CaseDiagnostic(*values) for values in zip(numbers, d_sample[chosen].tolist(),

@@ -218,8 +218,8 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
             d.append(d_part)
             h_cc.append(h_cc_part)
             h_ct.append(forms(H_ct.T, overwrite=True))  # H_ct is this loop's own
-        d, h_cc = np.concatenate(d), np.concatenate(h_cc)
-        h = h_cc - np.concatenate(h_ct)
+        d, h_cc = _joined(d), _joined(h_cc)
+        h = h_cc - _joined(h_ct)
         ok = h > 1e-10 * np.maximum(h_cc, 1e-300)
         mi = np.where(ok, 0.5 * n * d**2 / np.where(ok, h, 1.0), np.nan)
         epc = np.where(ok, -d / np.where(ok, h, 1.0), np.nan)
@@ -229,8 +229,13 @@ def score_tests(model: StructuredModel, theta: np.ndarray, likelihood, candidate
     labels = tuple(table.groups) if table.multigroup else (None,) * table.n_groups
     if not columns:
         return ModificationIndices(labels=labels)
-    mi, epc, std_epc, ok = (np.concatenate(c) for c in zip(*columns))
+    mi, epc, std_epc, ok = (_joined(c) for c in zip(*columns))
     return collected_indices(candidates, labels, mi, epc, std_epc, ok)
+
+
+def _joined(parts: list[np.ndarray] | tuple[np.ndarray, ...]) -> np.ndarray:
+    """The arrays one after the other (the one array itself when there is one chunk of one group)."""
+    return parts[0] if len(parts) == 1 else np.concatenate(parts)
 
 
 def _chunks(count: int) -> list[slice]:

@@ -44,17 +44,33 @@ GRAM_ROWS = 128  # rows per block of the Gram matrix: its blocks stay in the pro
 # and N = 1,000 than blocks of a thousand rows; process time, one BLAS thread)
 
 
-def whitened_rows(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] | None = None) -> tuple[np.ndarray, float]:
-    """(Y, log|S|): the centred rows times L^-T with S = L L' their covariance matrix (divisor N), so that
-    y_i' y_j = z_i' S^-1 z_j (the Mahalanobis products of Mardia's tests and the case diagnostics).
-    ``moments``: the rows' (mean, covariance with divisor N) when the caller has them (the fit's sample moments)."""
+@dataclass(frozen=True, eq=False)
+class Whitened:
+    """Rows whitened by their covariance matrix S = L L' (divisor N), shared by Mardia's tests and the case
+    diagnostics: ``rows`` Y = Z L^-T for the centred rows Z (``centred``), so that y_i' y_j = z_i' S^-1 z_j;
+    ``log_det`` log|S|; ``distances`` y_i' y_i, each row's squared Mahalanobis distance from the centroid."""
+
+    rows: np.ndarray
+    log_det: float
+    distances: np.ndarray
+    centred: np.ndarray
+
+
+def whitened_rows(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] | None = None) -> Whitened:
+    """:class:`Whitened` of ``rows``; ``moments``: the rows' (mean, covariance with divisor N) when the caller has
+    them (the fit's sample moments).  Y is Z times the transposed inverse of the Cholesky factor L, one matrix
+    product (as fast as the triangular solve with p columns, and the centred rows Z are kept for the case
+    diagnostics)."""
     mean, covariance = moments if moments is not None else (rows.mean(axis=0), None)
     Z = rows - mean
     L, info = lapack.dpotrf(Z.T @ Z / len(rows) if covariance is None else covariance, lower=1, clean=1)
     if info != 0:
         raise np.linalg.LinAlgError("the covariance matrix of the rows is not positive definite")
-    Y, _ = lapack.dtrtrs(L, Z.T, lower=1, overwrite_b=1)  # Z.T: the transposed view of Z, solved in place
-    return Y.T, 2.0 * float(np.log(L.diagonal()).sum())
+    inverse, info = lapack.dtrtri(L, lower=1)
+    if info != 0:
+        raise np.linalg.LinAlgError("the covariance matrix of the rows is not positive definite")
+    Y = Z @ inverse.T
+    return Whitened(Y, 2.0 * float(np.log(L.diagonal()).sum()), np.einsum("ij,ij->i", Y, Y), Z)
 
 
 def _frequency_whitened(rows: np.ndarray, frequencies: np.ndarray) -> np.ndarray:
@@ -66,7 +82,7 @@ def _frequency_whitened(rows: np.ndarray, frequencies: np.ndarray) -> np.ndarray
     return solve_triangular(L, Z.T, lower=True, check_finite=False).T
 
 
-def mardia(rows: np.ndarray, whitened: tuple[np.ndarray, float] | None = None,
+def mardia(rows: np.ndarray, whitened: Whitened | None = None,
            frequencies: np.ndarray | None = None) -> Normality:
     """Mardia's tests of ``rows``; ``whitened`` is :func:`whitened_rows` of them when the caller has it;
     ``frequencies``: frequency weights, each row counted as often as its weight (N their sum; ``whitened`` unused)."""
@@ -80,10 +96,9 @@ def mardia(rows: np.ndarray, whitened: tuple[np.ndarray, float] | None = None,
         b2 = float(frequencies @ d2**2 / n)
     else:
         n = rows.shape[0]
-        Y = (whitened_rows(rows) if whitened is None else whitened)[0]
-        b1 = _sum_of_cubed_products(Y) / (n * n)
-        d2 = np.einsum("ij,ij->i", Y, Y)
-        b2 = float(np.mean(d2**2))
+        whitened = whitened_rows(rows) if whitened is None else whitened
+        b1 = _sum_of_cubed_products(whitened.rows) / (n * n)
+        b2 = float(np.mean(whitened.distances**2))
     df = p * (p + 1) * (p + 2) // 6
     chi = n * b1 / 6.0
     expected = p * (p + 2.0)
@@ -101,9 +116,13 @@ def _sum_of_cubed_products(Y: np.ndarray, w: np.ndarray | None = None) -> float:
         for start in range(0, n, size):
             stop = min(n, start + size)
             G = Y[start:stop] @ Y[start:].T
+            if w is None:  # the cubes summed in one pass, no array of them (a quarter faster at 60 items)
+                total += 2.0 * float(np.einsum("ij,ij,ij->", G, G, G))
+                D = G[:, : stop - start]
+                total -= float(np.einsum("ij,ij,ij->", D, D, D))
+                continue
             G *= G * G
-            if w is not None:
-                G *= w[start:stop, None] * w[None, start:]
+            G *= w[start:stop, None] * w[None, start:]
             total += 2.0 * float(G.sum()) - float(G[:, : stop - start].sum())
         return total
     columns = np.ascontiguousarray(Y.T)

@@ -169,34 +169,34 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
     else:
         # contradictions are reported once, for the factor the items load on directly
         against = member & (K * np.where(G < 0, -1.0, 1.0) != direction) & (G != 0) & ~higher
-    totals = np.einsum("ij,ij->j", K, sigma @ K)
-    omega = np.einsum("ij,ij->j", K, G) ** 2 * phi.diagonal() / totals
-    omega_total = 1.0 - np.einsum("ij,ij->j", K, theta @ K) / totals
-    sd_lat = np.sqrt(np.maximum(phi.diagonal(), 1e-300))
-    sd_obs = np.sqrt(np.maximum(sigma.diagonal(), 1e-300))
-    corr_lat = phi / (sd_lat[:, None] * sd_lat)
-    Kd = K * direct  # keys of each first-order factor's own items
-    lam = L * sd_lat / sd_obs[:, None]  # standardized loadings (0 where an item does not load)
-    err = direct.T.astype(float) @ (theta.diagonal() / sd_obs**2)  # standardized residual variances, summed
-    keyed_sum = np.einsum("ij,ij->j", Kd, lam)
-    lam_squares = (lam**2).sum(axis=0)
-    with np.errstate(divide="ignore", invalid="ignore"):  # 0 / 0 for higher-order factors, which have neither
+    # one errstate for every quotient below: 0 / 0 for higher-order factors (which have no composite reliability or
+    # AVE), NaN comparisons for them (and a negative AVE: no Fornell-Larcker comparison holds), a factor of one item
+    with np.errstate(divide="ignore", invalid="ignore"):
+        totals = np.einsum("ij,ij->j", K, sigma @ K)
+        omega = np.einsum("ij,ij->j", K, G) ** 2 * phi.diagonal() / totals
+        omega_total = 1.0 - np.einsum("ij,ij->j", K, theta @ K) / totals
+        sd_lat = np.sqrt(np.maximum(phi.diagonal(), 1e-300))
+        sd_obs = np.sqrt(np.maximum(sigma.diagonal(), 1e-300))
+        corr_lat = phi / (sd_lat[:, None] * sd_lat)
+        Kd = K * direct  # keys of each first-order factor's own items
+        lam = L * sd_lat / sd_obs[:, None]  # standardized loadings (0 where an item does not load)
+        err = direct.T.astype(float) @ (theta.diagonal() / sd_obs**2)  # standardized residual variances, summed
+        keyed_sum = np.einsum("ij,ij->j", Kd, lam)
+        lam_squares = (lam**2).sum(axis=0)
         cr = keyed_sum**2 / (keyed_sum**2 + err)
         ave = lam_squares / (lam_squares + err)
-    counts = direct.sum(axis=0)
-    first_order = [j for j in range(m) if member[:, j].any() and latent[j] not in not_traits and not higher[j]]
-    # per factor, as lists read in the loop below: the largest |correlation| with another first-order factor
-    # (-inf with none) and whether sqrt(AVE) exceeds it (Fornell-Larcker)
-    others = np.zeros(m, dtype=bool)
-    others[first_order] = True
-    largest_a = np.where(others[None, :] & ~np.eye(m, dtype=bool), np.abs(corr_lat), -np.inf).max(axis=1)
-    with np.errstate(invalid="ignore"):  # NaN for higher-order factors (and a negative AVE): no comparison holds
+        counts = direct.sum(axis=0)
+        first_order = [j for j in range(m) if member[:, j].any() and latent[j] not in not_traits and not higher[j]]
+        # per factor, as lists read in the loop below: the largest |correlation| with another first-order factor
+        # (-inf with none) and whether sqrt(AVE) exceeds it (Fornell-Larcker)
+        others = np.zeros(m, dtype=bool)
+        others[first_order] = True
+        largest_a = np.where(others[None, :] & ~np.eye(m, dtype=bool), np.abs(corr_lat), -np.inf).max(axis=1)
         largest_l, holds_l = largest_a.tolist(), (np.sqrt(ave) > largest_a).tolist()
-    if S is not None:
-        SK = S @ Kd
-        keyed_totals = np.einsum("ij,ij->j", Kd, SK)  # k'S k over each factor's own items
-        s_ii = S.diagonal()
-        with np.errstate(divide="ignore", invalid="ignore"):
+        if S is not None:
+            SK = S @ Kd
+            keyed_totals = np.einsum("ij,ij->j", Kd, SK)  # k'S k over each factor's own items
+            s_ii = S.diagonal()
             alpha = np.where(counts > 1, counts / np.maximum(counts - 1, 1) * (1.0 - direct.T @ s_ii / keyed_totals),
                              np.nan)
             # the keyed sum's SD and each item's corrected item-total correlation (_sum_score_spread), every factor
@@ -204,7 +204,14 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
             with_rest = K * SK - s_ii[:, None]  # cov(k_i x_i, T - k_i x_i) with T the keyed sum
             rest = keyed_totals - 2.0 * K * SK + s_ii[:, None]  # var(T - k_i x_i)
             item_total_l = (with_rest / np.sqrt(np.maximum(s_ii[:, None] * rest, 1e-300))).T.tolist()
-        alpha_l, means_l = alpha.tolist(), means.tolist() if means is not None else None
+            alpha_l, means_l = alpha.tolist(), means.tolist() if means is not None else None
+            # HTMT: the keyed correlations k_a' R k_b of every pair of factors, and the mean keyed correlation within
+            # each factor (each pair of its items once)
+            sd_items = np.sqrt(s_ii)
+            R = S / (sd_items[:, None] * sd_items)
+            keyed_r = Kd.T @ R @ Kd
+            mono_l = ((keyed_r.diagonal() - direct.T @ R.diagonal()) / (counts * (counts - 1))).tolist()
+            keyed_r_l = keyed_r.tolist()
     keying = Keying.SIGNS if declared is None else Keying.DECLARED
     member_l, direct_l = [c.nonzero()[0].tolist() for c in member.T], [c.nonzero()[0].tolist() for c in direct.T]
     negative, against_l = (K < 0).tolist(), against.tolist()
@@ -217,9 +224,9 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         items = member_l[j]
         if not items or name in not_traits:
             continue
-        names = tuple(observed[i] for i in items)
-        reversed_items = tuple(observed[i] for i in items if negative[i][j])
-        against_items = tuple(observed[i] for i in items if against_l[i][j])
+        names = tuple([observed[i] for i in items])
+        reversed_items = tuple([observed[i] for i in items if negative[i][j]])
+        against_items = tuple([observed[i] for i in items if against_l[i][j]])
         turned, tied = turned_l[j], tied_l[j]
         if higher_l[j]:
             results.append(FactorReliability(name, names, "higher-order", omega_l[j], omega_total_l[j], omega_l[j],
@@ -233,7 +240,7 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
             alpha_j = alpha_l[j]
             if sum_scores:
                 sd = sd_l[j]
-                item_total = tuple(item_total_l[j][i] for i in own_items) if len(own_items) > 1 else ()
+                item_total = tuple([item_total_l[j][i] for i in own_items]) if len(own_items) > 1 else ()
             if sum_scores and means is not None:
                 mean = _sum_score_mean([means_l[i] for i in own_items], [negative[i][j] for i in own_items],
                                        [observed[i] for i in own_items], declared)
@@ -250,21 +257,16 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
                                          item_total, against_items, points_against=turned, evenly_split=tied))
     htmt = []
     if S is not None:
-        sd_items = np.sqrt(s_ii)
-        R = S / (sd_items[:, None] * sd_items)
-        keyed_r = Kd.T @ R @ Kd  # k_a' R k_b for every pair of factors
-        with np.errstate(divide="ignore", invalid="ignore"):  # mean keyed correlation within each factor (each pair once)
-            mono = (keyed_r.diagonal() - direct.T @ R.diagonal()) / (counts * (counts - 1))
         for a_pos, a in enumerate(first_order):
             for b in first_order[a_pos + 1:]:
-                short = [latent[f] for f in (a, b) if counts[f] < 2]
+                short = [latent[f] for f in (a, b) if counts_l[f] < 2]
                 if short:
                     htmt.append(Htmt(latent[a], latent[b], None, f"{' and '.join(short)} "
                                      f"{'has' if len(short) == 1 else 'have'} fewer than two items of its own, so there "
                                      f"is no correlation within it to compare with"))
                     continue
-                hetero = float(keyed_r[a, b]) / (counts[a] * counts[b])
-                mono_a, mono_b = float(mono[a]), float(mono[b])
+                hetero = keyed_r_l[a][b] / (counts_l[a] * counts_l[b])
+                mono_a, mono_b = mono_l[a], mono_l[b]
                 if mono_a > 0 and mono_b > 0:
                     htmt.append(Htmt(latent[a], latent[b], float(abs(hetero) / np.sqrt(mono_a * mono_b))))
                 else:

@@ -20,7 +20,7 @@ from cfa_tool.assessment.fit_indices import (baseline_chi_square, cfi_value, fit
                                              rmsea_value, srmr, srmr_value)
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
 from cfa_tool.assessment.modification import ModificationIndices, modification_indices
-from cfa_tool.assessment.normality import mardia, whitened_rows
+from cfa_tool.assessment.normality import Whitened, mardia, whitened_rows
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
 from cfa_tool.assessment.standardized import r_squared, standardization, standardize_entries
@@ -401,7 +401,7 @@ def estimate_rows(table: ParameterTable, values: np.ndarray, inference, standard
 
 def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool,
                        declared: dict[str, tuple[float, float]] | None, not_traits: frozenset[str] = frozenset(),
-                       whitened: tuple[np.ndarray, float] | None = None,
+                       whitened: Whitened | None = None,
                        inverse: tuple[np.ndarray, float] | None = None) -> dict:
     """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often);
     ``declared``: the reverse-keyed items of a 'reversed' statement, if any; ``whitened`` and ``inverse``: the

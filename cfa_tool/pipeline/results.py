@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
@@ -42,14 +43,25 @@ class EstimateRow:
 
 
 def estimate_dicts(rows: tuple[EstimateRow, ...] | list[EstimateRow]) -> list[dict]:
-    """Estimate rows as JSON-ready dictionaries, their numbers checked at once (NaN and infinities as None)."""
-    if not rows:
-        return []
-    numbers = plain_array(np.array([(r.estimate, r.se, r.z, r.p_value, *r.ci95, r.standardized,
-                                     r.standardized_factors_only) for r in rows], dtype=float))
-    return [{"kind": r.kind, "variables": list(r.variables), "group": r.group, "free": r.free, "estimate": c[0],
-             "se": c[1], "z": c[2], "p_value": c[3], "ci95": [c[4], c[5]], "standardized": c[6],
-             "standardized_factors_only": c[7]} for r, c in zip(rows, numbers)]
+    """Estimate rows as JSON-ready dictionaries, their numbers checked a column at a time (NaN and infinities as
+    None): a column whose sum is finite holds no NaN or infinity and is used as it is."""
+    columns = [_json_numbers([r.estimate for r in rows]), _json_numbers([r.se for r in rows]),
+               _json_numbers([r.z for r in rows]), _json_numbers([r.p_value for r in rows]),
+               _json_numbers([r.ci95[0] for r in rows]), _json_numbers([r.ci95[1] for r in rows]),
+               _json_numbers([r.standardized for r in rows]), _json_numbers([r.standardized_factors_only for r in rows])]
+    return [{"kind": r.kind, "variables": list(r.variables), "group": r.group, "free": r.free, "estimate": estimate,
+             "se": se, "z": z, "p_value": p, "ci95": [low, high], "standardized": std, "standardized_factors_only": lat}
+            for r, estimate, se, z, p, low, high, std, lat in zip(rows, *columns)]
+
+
+def _json_numbers(column: list) -> list[float | None]:
+    """A column of numbers as Python floats, NaN and infinities as None.  A column of Python floats whose sum is
+    finite is used as it is (a NaN or an infinity makes the sum one; numpy numbers make it a numpy one); any other
+    goes through value by value."""
+    total = sum(column)
+    if type(total) is float and math.isfinite(total):
+        return column
+    return [float(v) if v - v == 0.0 else None for v in column]
 
 
 def _percent_below_all(share: float) -> str:

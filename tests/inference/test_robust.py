@@ -137,8 +137,14 @@ def test_whitened_rows_from_the_fits_moments_equal_those_from_the_rows(hs_data):
 
     rows = hs_data[[f"x{i}" for i in range(1, 10)]].to_numpy(dtype=float)
     z = rows - rows.mean(axis=0)
-    Y, log_det = whitened_rows(rows)
-    Y_shared, log_det_shared = whitened_rows(rows, (rows.mean(axis=0), z.T @ z / len(rows)))
-    assert np.allclose(Y_shared, Y, rtol=1e-12, atol=1e-12) and log_det_shared == pytest.approx(log_det, rel=1e-12)
+    own, shared = whitened_rows(rows), whitened_rows(rows, (rows.mean(axis=0), z.T @ z / len(rows)))
+    Y, log_det = own.rows, own.log_det
+    assert np.allclose(shared.rows, Y, rtol=1e-12, atol=1e-12) and shared.log_det == pytest.approx(log_det, rel=1e-12)
+    assert np.allclose(shared.centred, z, rtol=1e-12, atol=1e-12)
     # y_i' y_j = z_i' S^-1 z_j (the definition the tests use; S with divisor N)
     assert np.allclose(Y @ Y.T, z @ np.linalg.inv(z.T @ z / len(rows)) @ z.T, atol=1e-9)
+    # each row's squared Mahalanobis distance from the centroid (Mahalanobis 1936), by scipy's distance
+    from scipy.spatial.distance import cdist
+
+    scipy_d2 = cdist(rows, rows.mean(axis=0)[None, :], "mahalanobis", VI=np.linalg.inv(z.T @ z / len(rows)))[:, 0] ** 2
+    assert np.allclose(own.distances, scipy_d2, rtol=1e-10)
