@@ -64,6 +64,9 @@ class ProblemKind(enum.Enum):
     # a factor whose loadings mostly run against its items' keying (assessment.reliability.keying_problems): its
     # correlations, mean differences and scores read the wrong way
     FACTOR_POINTS_AGAINST_ITEMS = ("factor points against its items", "points against its items", False)
+    # not of the solution but of the data: rows that gave one answer to every item, reverse-worded ones included
+    # (data.same_answers), kept in the analysis
+    SAME_ANSWER_ROWS = ("same answer to every item", "same answer throughout", False)
 
 
 #: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them
@@ -139,6 +142,8 @@ class Problem:
             K.FEW_ANSWERS: "items answered by few of the rows",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
+            K.SAME_ANSWER_ROWS: "rows that gave the same answer to every item, reverse-worded ones included (kept in "
+                                "the analysis)",
             K.FACTOR_POINTS_AGAINST_ITEMS: f"factor {', '.join(names)} pointing against its items (a higher score "
                                            f"means less of what most of them ask)",
         }[self.kind]

@@ -316,6 +316,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                        ordinal_estimator, design), ids_by_row_number(ids, frame))
     result = with_odd_values(result, loaded)
+    result = with_same_answer_rows(result, _labelled(frame, group), spec, ids_by_row_number(ids, frame))
     codes = missing_codes_option(missing_codes)
     if codes:  # kept with the fit: scores of other data with it read them so too
         result = replace(result, data=replace(result.data, missing_codes=codes))
@@ -351,6 +352,50 @@ def with_odd_values(result, loaded: LoadedData):
     better."""
     found = tuple(p for p in odd_value_problems(loaded) + few_answers_problems(result)
                   if p not in result.problems)  # said once (scores of the fitted file, say)
+    return replace(result, problems=found + tuple(result.problems)) if found else result
+
+
+SAME_ANSWER_ROWS_SHOWN = 10  # rows a caution about same-answer rows names before 'and N more'
+
+
+def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict) -> tuple:
+    """A caution naming the rows of ``frame`` (the rows analysed) that gave one answer to every item, the items of
+    the model's 'reversed' statement included (data.same_answers: careless responding, Johnson 2005; Curran 2016),
+    by data-row number and id (``ids``: data-row number -> id); () when the model declares no reversed items or no
+    row did.  The rows stay in the analysis."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.same_answers import same_answer_rows
+
+    declared = spec.reverse_keyed
+    items = [x for x in spec.observed_names if x in frame.columns]
+    if not declared or len(items) < 2:
+        return ()
+    values = frame[items].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
+    found = same_answer_rows(values, row_numbers(frame), np.array([x in declared for x in items]))
+    if found is None:
+        return ()
+    shown = [f"{r} ({printable(ids[r])})" if ids.get(r) is not None else str(r)
+             for r in found.rows[:SAME_ANSWER_ROWS_SHOWN]]
+    more = len(found.rows) - len(shown)
+    n = len(found.rows)
+    one = n == 1
+    answers = sorted(set(found.answers))
+    gave = (f"the answer {answers[0]:g}" if len(answers) == 1 else
+            "one answer each (" + ", ".join(f"{a:g}" for a in answers) + ")")
+    rows = f"data row{'' if one else 's'} {', '.join(shown)}" + (f" and {more} more" if more else "")
+    return (Problem(ProblemKind.SAME_ANSWER_ROWS, (), float(n),
+                    f"{n} {'row' if one else 'rows'} gave {gave} to every item {'it' if one else 'they'} answered, the "
+                    f"{found.reversed_items} reverse-worded items included ({rows}): agreeing alike with an item and "
+                    f"its reversal suggests careless responding (a long string of identical answers; Johnson 2005, "
+                    f"Curran 2016). {'It is' if one else 'They are'} kept in this analysis.",
+                    f"check {'this row' if one else 'these rows'} in the data; if {'it was' if one else 'they were'} "
+                    f"not answered with care, fit again without {'it' if one else 'them'} (a --keep filter on an id "
+                    f"column, or deleting {'it' if one else 'them'} from a copy of the file) and compare the results."),)
+
+
+def with_same_answer_rows(result, frame: pd.DataFrame, spec: Spec, ids: dict):
+    """``result`` (anything with ``problems``) with :func:`same_answer_problems` first (said once)."""
+    found = tuple(p for p in same_answer_problems(frame, spec, ids) if p not in result.problems)
     return replace(result, problems=found + tuple(result.problems)) if found else result
 
 
