@@ -311,6 +311,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                                                  (id_column,) if isinstance(id_column, str) else ())
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
+    if id_column is not None:
+        _id_can_apply(spec, ordinal, fit_options)
     loaded = analysed_odd_values(loaded, spec, group)
     with odd_values_named(loaded):
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
@@ -322,6 +324,24 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         result = replace(result, data=replace(result.data, missing_codes=codes))
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
+
+
+def _id_can_apply(spec: Spec, ordinal, fit_options: FitOptions) -> None:
+    """An id column names rows in the table of rows that contribute most to the chi-square (fits of continuous
+    items with the diagnostics) and in the caution about rows with one answer throughout (models with reverse-keyed
+    items): an :class:`OptionError` when the fit has neither, since the option could not apply."""
+    if spec.reverse_keyed:
+        return
+    if ordinal_items_of(spec, ordinal):
+        why = "a fit of ordinal items does not have"
+    elif not fit_options.diagnostics:
+        why = "a fit without its diagnostics (diagnostics=False) does not have"
+    else:
+        return
+    raise OptionError(f"the id column (--id) cannot apply: it names rows in the table of rows that contribute most to "
+                      f"the chi-square, which {why}, and in the caution about rows that gave one answer to every item, "
+                      f"which needs reverse-worded items (a 'reversed' statement); leave it out ('scores' takes --id "
+                      f"to name each scored row)")
 
 
 def odd_value_problems(loaded: LoadedData) -> tuple:
