@@ -12,7 +12,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.assessment.admissibility import solution_problems
+from cfa_tool.assessment.admissibility import small_group_problems, solution_problems
 from cfa_tool.data.descriptives import item_shape
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, incomplete_case_diagnostics, normalized_residuals
@@ -288,8 +288,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         evaluation = likelihood.evaluate(theta)
         if evaluation is not None and np.all(np.isfinite(evaluation.information)):
             check_information_rank(evaluation.information, table.free_labels)
-    problems = solution_problems(table, mats, theta, cov_theta if est.converged else None, est.converged, est.message,
-                                 options.max_iterations)
+    problems = small_group_problems(table, [m.n_obs for _, m in groups]) + tuple(solution_problems(
+        table, mats, theta, cov_theta if est.converged else None, est.converged, est.message, options.max_iterations))
 
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized)
 

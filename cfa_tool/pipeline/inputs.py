@@ -670,7 +670,11 @@ def _description(spec: Spec, groups: tuple[str, ...] | None, ordinal_items: tupl
 def converged(result: FitResult) -> FitResult:
     """``result`` if its estimation converged; otherwise the EstimationError that says why."""
     if not result.converged:
-        raise EstimationError(f"the estimation did not converge: {result.message}")
+        from cfa_tool.assessment.admissibility import ProblemKind
+
+        # a group with fewer rows than its model's parameters: the likeliest cause, said first
+        small = "".join(f"group {p.group}: {p.explanation} " for p in result.problems if p.kind is ProblemKind.SMALL_GROUP)
+        raise EstimationError(f"{small[:1].upper()}{small[1:]}the estimation did not converge: {result.message}")
     return result
 
 
@@ -856,6 +860,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     coverage.  A sampling design (``weights``, ``cluster``, ``strata``, ``weight_kind``, as for :func:`fit`) is
     checked as the fit checks it and stated: the sum of the weights, Kish's effective sample size, the
     clusters and strata, with the caution a fit would give about too few clusters."""
+    from cfa_tool.assessment.admissibility import group_parameter_counts, small_group_problems
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
@@ -915,6 +920,10 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
-                       odd_value_problems(loaded), len(frame) - len(answered), odd_complete,
-                       len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted)
+                       odd_value_problems(loaded) + (() if ordinal_items else  # (thresholds: counted by the fit)
+                                                     small_group_problems(table, [m.n_obs for _, m in groups])),
+                       len(frame) - len(answered), odd_complete,
+                       len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,
+                       group_rows=tuple(m.n_obs for _, m in groups) if labels else (),
+                       group_parameters=tuple(group_parameter_counts(table)) if labels and not ordinal_items else ())
 
