@@ -39,7 +39,7 @@ from cfa_tool.numerics import distributions as dist
 from cfa_tool.data.moments import numeric_columns, row_numbers
 from cfa_tool.data.odd_values import code_like
 from cfa_tool.data.sample_design import DesignColumns, RowDesign, row_design
-from cfa_tool.errors import DataError, printable
+from cfa_tool.errors import DataError, RowDataError, printable
 from cfa_tool.method import WeightKind
 from cfa_tool.numerics.bivariate import BIG, bivariate_cdf, bivariate_pdf
 
@@ -474,9 +474,10 @@ def check_whole_answers(values: np.ndarray, frame: pd.DataFrame, names: tuple[st
     row, j = np.argwhere(fractional)[0]  # the first row that has one
     others = int(fractional[:, j].sum()) - 1
     more = f" (and {others} other fractional {'answer' if others == 1 else 'answers'})" if others else ""
-    raise DataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {values[row, j]:g} in "
-                    f"data row {row_numbers(frame)[row]}{more}; the answers of an ordinal item are category codes "
-                    f"(whole numbers): correct the value, or analyse the item as continuous")
+    number = int(row_numbers(frame)[row])
+    raise RowDataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {values[row, j]:g} in "
+                       f"data row {number}{more}; the answers of an ordinal item are category codes (whole numbers): "
+                       f"correct the value, or analyse the item as continuous", number)
 
 
 def empty_categories_in_groups(frames: list[pd.DataFrame], wheres: list[str], names: tuple[str, ...], source: str,

@@ -25,7 +25,7 @@ from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_desi
                                          refuse_shared_clusters)
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
-from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
+from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, printable
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
@@ -458,9 +458,19 @@ def analysed_odd_values(loaded: LoadedData, spec: Spec, group: str | None) -> Lo
 @contextmanager
 def odd_values_named(loaded: LoadedData):
     """An estimation that fails on data holding values that look like no answers says so first: they are the
-    likelier cause than the iterations or the identification the failure's own advice names."""
+    likelier cause than the iterations or the identification the failure's own advice names; a data error about a
+    row that the reading found to look like a row of totals or means (a fractional answer of an ordinal item in it)
+    says that first, with the way to leave the row out."""
     try:
         yield
+    except RowDataError as exc:  # a data row the reading already found to look like no one's answers: said first
+        from cfa_tool.data.odd_values import OddKind
+
+        odd = next((o for o in loaded.odd_values if o.kind is not OddKind.MISSING_CODE and exc.row in o.rows), None)
+        if odd is None:
+            raise
+        raise DataError(f"{odd.caution(loaded.source)} What to try first: {odd.advice()} "
+                        f"Then: {exc}") from None
     except EstimationError as exc:
         if not loaded.odd_values:
             raise

@@ -669,15 +669,19 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
     note = ("HTMT: heterotrait-monotrait ratio of the keyed items, in absolute value (Henseler, Ringle & Sarstedt "
             "2015); common practice reads values above .85 (or .90) as a sign that two factors are not distinct. "
             "sqrt(AVE) > |r|: both factors' average variance extracted exceeds their squared correlation (Fornell & "
-            "Larcker 1981). The interval of a correlation is shown when both factors are scaled by their variances "
-            "(then their covariance is the correlation).")
-    if reasons:
-        note += " " + " ".join(reasons)
+            "Larcker 1981).")
     columns = [("Factor", "l"), ("Factor", "l"), ("r", "r"), ("95% CI", "r"), ("HTMT", "r"), ("AVE", "r"),
                ("sqrt(AVE) > |r|", "l")]
     if not any(row[3] for row in body):  # no interval to show (factors scaled by a marker or effects coding)
         columns.pop(3)
         body = [row[:3] + row[4:] for row in body]
+        note += (" No interval of r is shown: none of these correlations is a parameter of the model (it is one when "
+                 "both factors are scaled by their variances, as 'scale latent by variance' in the model does).")
+    else:
+        note += (" The interval of a correlation is shown when both factors are scaled by their variances (then their "
+                 "covariance is the correlation).")
+    if reasons:
+        note += " " + " ".join(reasons)
     return _table(f"distinct_{group}", "Are the factors distinct?", columns, body, _unusable(result) + note,
                   _all_if_unusable(result, body),
                   values=(["Factor", "Factor", "r", "95% CI lower", "95% CI upper", "HTMT", "AVE (first)", "AVE (second)",
