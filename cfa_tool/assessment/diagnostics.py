@@ -21,6 +21,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.assessment.normality import whitened_rows
+from cfa_tool.data.patterns import embedded_inverse, group_patterns
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import spd_inverse
 
@@ -76,23 +77,18 @@ def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarra
     return found[:shown], found[shown:]
 
 
-def _answered_distances(rows: np.ndarray, observed: np.ndarray, mean: np.ndarray,
+def _answered_distances(rows: np.ndarray, patterns: tuple[np.ndarray, np.ndarray], mean: np.ndarray,
                         sigma: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Each row's squared Mahalanobis distance on its answered items under (mean, sigma), and log|Sigma_oo|
-    of its answered items, one factorisation per missing-data pattern."""
-    n = len(rows)
-    distance, log_det = np.empty(n), np.empty(n)
-    patterns, which = np.unique(observed, axis=0, return_inverse=True)
-    which = which.ravel()
-    for k, o in enumerate(patterns):
-        members = np.flatnonzero(which == k)
-        inverse = spd_inverse(sigma[np.ix_(o, o)])
-        if inverse is None:
-            raise np.linalg.LinAlgError("an implied covariance matrix of answered items is not positive definite")
-        dev = rows[np.ix_(members, np.flatnonzero(o))] - mean[o]
-        distance[members] = np.einsum("ij,ij->i", dev @ inverse[0], dev)
-        log_det[members] = inverse[1]
-    return distance, log_det
+    """Each row's squared Mahalanobis distance on its answered items under (mean, sigma), and log|Sigma_oo| of its
+    answered items; ``patterns``: (distinct patterns, pattern of each row).  Sigma_oo^-1 of every pattern comes
+    batched from the precision matrix (data.patterns.embedded_inverse, as the full-information likelihood has it)."""
+    distinct, index = patterns
+    found = embedded_inverse(sigma, distinct)
+    if found is None:
+        raise np.linalg.LinAlgError("an implied covariance matrix of answered items is not positive definite")
+    A, log_det = found
+    dev = np.where(np.isnan(rows), 0.0, rows - mean)
+    return np.einsum("ij,ijk,ik->i", dev, A[index], dev), log_det[index]
 
 
 def incomplete_case_diagnostics(rows: np.ndarray, mean: np.ndarray, sigma: np.ndarray,
@@ -105,8 +101,9 @@ def incomplete_case_diagnostics(rows: np.ndarray, mean: np.ndarray, sigma: np.nd
     The shares sum over the rows to the full-information chi-square of the group."""
     observed = ~np.isnan(rows)
     answered = observed.sum(axis=1)
-    d_saturated, log_det_saturated = _answered_distances(rows, observed, *saturated)
-    d_model, log_det_model = _answered_distances(rows, observed, mean, sigma)
+    patterns = group_patterns(observed)[:2]
+    d_saturated, log_det_saturated = _answered_distances(rows, patterns, *saturated)
+    d_model, log_det_model = _answered_distances(rows, patterns, mean, sigma)
     share = log_det_model - log_det_saturated + d_model - d_saturated
     p_values = dist.chi2_sf(d_saturated, answered)
     chosen = np.concatenate([np.lexsort((-d_saturated, p_values))[:top], np.argsort(-share, kind="stable")[:top]])
