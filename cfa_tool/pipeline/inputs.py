@@ -318,7 +318,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                        ordinal_estimator, design), ids_by_row_number(ids, frame))
     result = with_odd_values(result, loaded)
-    result = with_same_answer_rows(result, _labelled(frame, group), spec, ids_by_row_number(ids, frame))
+    if spec.reversed:  # rows with one answer throughout contradict reverse-worded items
+        result = with_same_answer_rows(result, _labelled(frame, group), spec, ids_by_row_number(ids, frame))
     codes = missing_codes_option(missing_codes)
     if codes:  # kept with the fit: scores of other data with it read them so too
         result = replace(result, data=replace(result.data, missing_codes=codes))
@@ -383,12 +384,14 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict) -> tuple:
     the model's 'reversed' statement included (data.same_answers: careless responding, Johnson 2005; Curran 2016),
     by data-row number and id (``ids``: data-row number -> id); () when the model declares no reversed items or no
     row did.  The rows stay in the analysis."""
+    if not spec.reversed:
+        return ()
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.data.same_answers import same_answer_rows
 
     declared = spec.reverse_keyed
     items = [x for x in spec.observed_names if x in frame.columns]
-    if not declared or len(items) < 2:
+    if len(items) < 2:
         return ()
     values = frame[items].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
     found = same_answer_rows(values, row_numbers(frame), np.array([x in declared for x in items]))

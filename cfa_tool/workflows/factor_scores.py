@@ -277,7 +277,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                   f"run 'fit' to see its problems")
     result = api.with_odd_values(result, loaded)
     # rows that gave one answer to every item, reverse-worded ones included: named first, scored like every row
-    result = api.with_same_answer_rows(result, api._labelled(frame, group), spec, ids_by_row_number(ids, read_frame))
+    if spec.reversed:
+        result = api.with_same_answer_rows(result, api._labelled(frame, group), spec, ids_by_row_number(ids, read_frame))
     fitted_rows = _fitted_rows(frame, design, spec, group, source)
     if ordinal_items:
         chosen = (ScoreMethod.EXPECTED_A_POSTERIORI,)
