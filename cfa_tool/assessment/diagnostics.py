@@ -21,7 +21,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.assessment.normality import whitened_rows
-from cfa_tool.data.patterns import embedded_inverse, group_patterns
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import spd_inverse
 
@@ -82,6 +81,8 @@ def _answered_distances(rows: np.ndarray, patterns: tuple[np.ndarray, np.ndarray
     """Each row's squared Mahalanobis distance on its answered items under (mean, sigma), and log|Sigma_oo| of its
     answered items; ``patterns``: (distinct patterns, pattern of each row).  Sigma_oo^-1 of every pattern comes
     batched from the precision matrix (data.patterns.embedded_inverse, as the full-information likelihood has it)."""
+    from cfa_tool.data.patterns import embedded_inverse  # (fits of complete rows do not load it)
+
     distinct, index = patterns
     found = embedded_inverse(sigma, distinct)
     if found is None:
@@ -99,6 +100,8 @@ def incomplete_case_diagnostics(rows: np.ndarray, mean: np.ndarray, sigma: np.nd
     chi-square with as many df as items answered; rows with the largest shares of the chi-square).  ``mean`` and
     ``sigma`` are the fitted model's, ``saturated`` the EM means and covariances (Yuan & Bentler 2000; Enders 2010).
     The shares sum over the rows to the full-information chi-square of the group."""
+    from cfa_tool.data.patterns import group_patterns
+
     observed = ~np.isnan(rows)
     answered = observed.sum(axis=1)
     patterns = group_patterns(observed)[:2]
