@@ -107,6 +107,15 @@ class DataError(UserInputError):
     """A problem with the data file or its columns."""
 
 
+class RowDataError(DataError):
+    """A :class:`DataError` about one data row (``row``: its data-row number, 1 = the first row after the header), so
+    that a caller that knows more of that row (a row of means or totals found on reading) can say so first."""
+
+    def __init__(self, message: str, row: int):
+        self.row = row
+        super().__init__(message)
+
+
 class OptionError(UserInputError):
     """A command-line or API option that cannot be honoured."""
 

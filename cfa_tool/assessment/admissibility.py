@@ -65,6 +65,11 @@ class ProblemKind(enum.Enum):
     # a factor whose loadings mostly run against its items' keying (assessment.reliability.keying_problems): its
     # correlations, mean differences and scores read the wrong way
     FACTOR_POINTS_AGAINST_ITEMS = ("factor points against its items", "points against its items", False)
+    # not of the solution but of the data: rows that gave one answer to every item, reverse-worded ones included
+    # (data.same_answers), kept in the analysis
+    SAME_ANSWER_ROWS = ("same answer to every item", "same answer throughout", False)
+    # not of the solution but of the data: a group with fewer rows than its model has free parameters
+    SMALL_GROUP = ("group smaller than its model", "fewer rows than parameters", False)
 
 
 #: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them
@@ -140,6 +145,9 @@ class Problem:
             K.FEW_ANSWERS: "items answered by few of the rows",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
+            K.SMALL_GROUP: f"fewer rows ({v.split('.')[0]}) than free parameters of the group's model",
+            K.SAME_ANSWER_ROWS: "rows that gave the same answer to every item, reverse-worded ones included (kept in "
+                                "the analysis)",
             K.FACTOR_POINTS_AGAINST_ITEMS: f"factor {', '.join(names)} pointing against its items (a higher score "
                                            f"means less of what most of them ask)",
         }[self.kind]
@@ -167,6 +175,41 @@ class Problem:
 def _names(label: str) -> tuple[str, ...]:
     """The variables of a parameter label such as 'factor_covariance(F1, F2)' (a group suffix dropped)."""
     return split_label(label)[1]
+
+
+#: rows per free parameter a common rule of thumb asks for (Bentler & Chou 1987, recalled from memory: at least 5,
+#: better 10); stated in the small-group caution, not a cutoff of its own
+ROWS_PER_PARAMETER = 5
+
+
+def group_parameter_counts(table: ParameterTable) -> list[int]:
+    """The free parameters of each group's model: the distinct elements of theta its entries depend on (a
+    parameter held equal across groups counts in each group it appears in)."""
+    used: list[set[int]] = [set() for _ in range(table.n_groups)]
+    for par in table.parameters:
+        used[par.group].update(index for index, _ in par.terms)
+    return [len(u) for u in used]
+
+
+def small_group_problems(table: ParameterTable, rows: list[float]) -> tuple[Problem, ...]:
+    """A caution for each group (of several) with fewer rows (``rows``, one per group, as the fit counts them) than
+    its model has free parameters: its estimates, and every comparison with other groups, rest on too few answers
+    (a common rule of thumb asks for at least :data:`ROWS_PER_PARAMETER` rows per parameter; Bentler & Chou 1987,
+    recalled from memory)."""
+    if not table.multigroup:
+        return ()
+    out = []
+    for label, n, q in zip(table.groups, rows, group_parameter_counts(table)):
+        if n < q:
+            out.append(Problem(
+                ProblemKind.SMALL_GROUP, (), float(n),
+                f"{n:g} rows for the {q} free parameters of this group's model: its estimates, and every "
+                f"comparison with the other groups, rest on too few answers (fewer rows than parameters; a common rule "
+                f"of thumb, recalled from Bentler & Chou 1987, asks for at least {ROWS_PER_PARAMETER} rows per "
+                f"parameter).",
+                "gather more rows for this group, join it with a similar group by recoding the group column, or leave "
+                "it out with a row filter (--keep).", label))
+    return tuple(out)
 
 
 HEYWOOD_ADVICE = ("Look for what the model leaves out near it (a residual covariance or cross-loading the modification "

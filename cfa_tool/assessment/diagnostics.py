@@ -6,7 +6,12 @@
   (Mahalanobis 1936), chi-square on p df for normal data;
 * each row's share of the chi-square: with means saturated,
   2 (l_i(saturated) - l_i(model)) = log|Sigma| - log|S| + d_i' Sigma^-1 d_i - d_i' S^-1 d_i,
-  which sums over rows to the chi-square statistic exactly.
+  which sums over rows to the chi-square statistic exactly;
+* with incomplete rows (full-information ML), each row's distance on the items it answered o,
+  d^2 = (x_o - m_o)' S_oo^-1 (x_o - m_o) under the saturated (EM) moments, chi-square on |o| df
+  (Yuan & Bentler 2000; Enders 2010, ch. 10), its distance under the fitted model, and its share
+  2 (l_i(saturated) - l_i(model)) = log|Sigma_oo| - log|S_oo| + d_model - d_saturated, which sums over
+  rows to the full-information chi-square exactly (the casewise likelihood, Arbuckle 1996).
 """
 
 from __future__ import annotations
@@ -27,10 +32,14 @@ class CaseDiagnostic:
     p_value: float
     chi_square_share: float
     id: str | None = None  # the row's value in the id column (--id) or its row name, when the data have one
+    answered: int | None = None  # rows with gaps: the items the row answered (the distances' df); None: every item
+    model_mahalanobis: float | None = None  # rows with gaps: the distance under the fitted model's moments
 
     def to_dict(self) -> dict:
         out = {"row": self.row, "mahalanobis": self.mahalanobis, "p_value": self.p_value,
                "chi_square_share": self.chi_square_share}
+        if self.answered is not None:
+            out.update(answered=self.answered, model_mahalanobis=self.model_mahalanobis)
         if self.id is not None:
             out = {"row": self.row, "id": self.id, **{k: v for k, v in out.items() if k != "row"}}
         return out
@@ -66,4 +75,46 @@ def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarra
     found = [CaseDiagnostic(*values) for values in zip(numbers, d_sample[chosen].tolist(),
                                                        dist.chi2_sf(d_sample[chosen], p).tolist(), share[chosen].tolist())]
     shown = len(found) // 2  # the rows shown: p-values only for them
+    return found[:shown], found[shown:]
+
+
+def _answered_distances(rows: np.ndarray, patterns: tuple[np.ndarray, np.ndarray], mean: np.ndarray,
+                        sigma: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Each row's squared Mahalanobis distance on its answered items under (mean, sigma), and log|Sigma_oo| of its
+    answered items; ``patterns``: (distinct patterns, pattern of each row).  Sigma_oo^-1 of every pattern comes
+    batched from the precision matrix (data.patterns.embedded_inverse, as the full-information likelihood has it)."""
+    from cfa_tool.data.patterns import embedded_inverse  # (fits of complete rows do not load it)
+
+    distinct, index = patterns
+    found = embedded_inverse(sigma, distinct)
+    if found is None:
+        raise np.linalg.LinAlgError("an implied covariance matrix of answered items is not positive definite")
+    A, log_det = found
+    dev = np.where(np.isnan(rows), 0.0, rows - mean)
+    return np.einsum("ij,ijk,ik->i", dev, A[index], dev), log_det[index]
+
+
+def incomplete_case_diagnostics(rows: np.ndarray, mean: np.ndarray, sigma: np.ndarray,
+                                saturated: tuple[np.ndarray, np.ndarray], row_numbers: np.ndarray | None,
+                                top: int = 10) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
+    """The case diagnostics of rows with gaps (NaN for a missing answer; every row answers some item) under
+    full-information ML: (rows least likely under the saturated moments, by the p-value of their distance on
+    chi-square with as many df as items answered; rows with the largest shares of the chi-square).  ``mean`` and
+    ``sigma`` are the fitted model's, ``saturated`` the EM means and covariances (Yuan & Bentler 2000; Enders 2010).
+    The shares sum over the rows to the full-information chi-square of the group."""
+    from cfa_tool.data.patterns import group_patterns
+
+    observed = ~np.isnan(rows)
+    answered = observed.sum(axis=1)
+    patterns = group_patterns(observed)[:2]
+    d_saturated, log_det_saturated = _answered_distances(rows, patterns, *saturated)
+    d_model, log_det_model = _answered_distances(rows, patterns, mean, sigma)
+    share = log_det_model - log_det_saturated + d_model - d_saturated
+    p_values = dist.chi2_sf(d_saturated, answered)
+    chosen = np.concatenate([np.lexsort((-d_saturated, p_values))[:top], np.argsort(-share, kind="stable")[:top]])
+    numbers = (chosen + 1 if row_numbers is None else row_numbers[chosen]).tolist()
+    found = [CaseDiagnostic(row, d, p, s, None, k, dm) for row, d, p, s, k, dm in zip(
+        numbers, d_saturated[chosen].tolist(), p_values[chosen].tolist(), share[chosen].tolist(),
+        answered[chosen].tolist(), d_model[chosen].tolist())]
+    shown = len(found) // 2
     return found[:shown], found[shown:]

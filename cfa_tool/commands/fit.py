@@ -17,8 +17,9 @@ def add_parser(sub) -> None:
     O.add_data_options(fit)
     O.add_group_options(fit, required=False)
     add_fit_outputs(fit)
-    fit.add_argument("--id", metavar="COLUMN", help="column that names each row (never analysed): the case tables show it "
-                                                    "beside the data-row number")
+    fit.add_argument("--id", metavar="COLUMN", help="column that names each row (never analysed): the case tables and the "
+                                                    "caution about rows with one answer throughout show it beside the "
+                                                    "data-row number")
     O.add_design_options(fit)
 
 

@@ -67,12 +67,15 @@ def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ..
     from every answer; ``design``: weighted, sampling weights rescaled within each group; ``continuous``: items
     analysed beside the ordinal ones, with their means and variances; see
     :func:`cfa_tool.data.polychoric.ordinal_moments`)."""
-    from cfa_tool.data.polychoric import ordinal_moments, shared_levels
+    from cfa_tool.data.polychoric import empty_categories_in_groups, ordinal_moments, shared_levels
 
     labels = group_labels(frame, column, source, reference)
     keys = frame[column].map(lambda v: None if pd.isna(v) else _label(v))
     parts = [frame.loc[(keys == label).to_numpy()] for label in labels]
     levels = shared_levels(parts, names, source, pairwise, continuous)  # (a continuous item's are not used)
+    # every empty category of every group and item in one message (not one per run)
+    empty_categories_in_groups(parts, [f" (group '{label}' of {column})" for label in labels], names, source, levels,
+                               pairwise, continuous)
     out = [(label, ordinal_moments(part, names, source, continuous, levels=levels,
                                    where=f" (group '{label}' of {column})", pairwise=pairwise, design=design))
            for label, part in zip(labels, parts)]

@@ -322,7 +322,7 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     w = pd.to_numeric(frame[weights]).to_numpy(dtype=float) if weights is not None else None
     p = values.shape[1]
     if missing == MissingData.FULL_INFORMATION:  # the member or its word
-        return _incomplete_moments(values, names, source, file_source, group, len(frame), w)
+        return _incomplete_moments(values, names, source, file_source, group, len(frame), w, row_numbers(frame))
     complete = None if finite else ~np.isnan(values).any(axis=1)  # checked finite: every row is complete
     every_row = complete is None or bool(complete.all())
     data = values if every_row else values[complete]
@@ -357,7 +357,7 @@ def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,
 
 
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int,
-                        weights: np.ndarray | None = None) -> SampleMoments:
+                        weights: np.ndarray | None = None, numbers: np.ndarray | None = None) -> SampleMoments:
     from cfa_tool.data.em import SingularCovariance, em_saturated
     from cfa_tool.data.patterns import pattern_data
 
@@ -399,7 +399,8 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
         raise EstimationError(f"{source}: {error}; {complete} of its {n} rows answer all {p} items. What to try: "
                               f"{remedy}") from None
     _check_moments(sigma, mu, names, source)
-    return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data)
+    return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data,
+                         numbers[answered] if numbers is not None else None)
 
 
 def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20,

@@ -39,7 +39,7 @@ from cfa_tool.numerics import distributions as dist
 from cfa_tool.data.moments import numeric_columns, row_numbers
 from cfa_tool.data.odd_values import code_like
 from cfa_tool.data.sample_design import DesignColumns, RowDesign, row_design
-from cfa_tool.errors import DataError, printable
+from cfa_tool.errors import DataError, RowDataError, printable
 from cfa_tool.method import WeightKind
 from cfa_tool.numerics.bivariate import BIG, bivariate_cdf, bivariate_pdf
 
@@ -369,15 +369,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             item_levels = np.asarray(levels[name], dtype=float)
             empty = [v for v in item_levels if v not in seen]
             if empty:
-                beyond = [f"{v:g}" for v in empty if (v < seen.min() or v > seen.max()) and code_like(v)]  # a code?
-                first = (f"if {' and '.join(beyond)} {'is' if len(beyond) == 1 else 'are'} not a real answer (a typing "
-                         f"error or a code for no answer), give --missing-codes {','.join(beyond)}; if real, "
-                         if beyond else "")
-                raise DataError(f"{source}{where}: no one answered {_categories(empty)} on ordinal item '{name}', which "
-                                f"other groups used; thresholds cannot be compared across groups with an empty category. "
-                                f"The tool does not merge categories: {first}in a copy of the data file, recode "
-                                f"'{printable(name)}' ({_merged_into(empty, seen)}) in every group; or drop the item from the "
-                                f"model, or leave this group out with a row filter (--keep)")
+                raise _empty_categories_error(source, {where: {name: empty}}, {name: seen})
         else:
             item_levels = seen
         if len(item_levels) < 2:
@@ -482,9 +474,69 @@ def check_whole_answers(values: np.ndarray, frame: pd.DataFrame, names: tuple[st
     row, j = np.argwhere(fractional)[0]  # the first row that has one
     others = int(fractional[:, j].sum()) - 1
     more = f" (and {others} other fractional {'answer' if others == 1 else 'answers'})" if others else ""
-    raise DataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {values[row, j]:g} in "
-                    f"data row {row_numbers(frame)[row]}{more}; the answers of an ordinal item are category codes "
-                    f"(whole numbers): correct the value, or analyse the item as continuous")
+    number = int(row_numbers(frame)[row])
+    raise RowDataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {values[row, j]:g} in "
+                       f"data row {number}{more}; the answers of an ordinal item are category codes (whole numbers): "
+                       f"correct the value, or analyse the item as continuous", number)
+
+
+def empty_categories_in_groups(frames: list[pd.DataFrame], wheres: list[str], names: tuple[str, ...], source: str,
+                               levels: dict[str, tuple[float, ...]], pairwise: bool = False,
+                               continuous: frozenset[str] = frozenset()) -> None:
+    """A :class:`DataError` naming, in one message, every group (``wheres``: ' (group ...)' of each frame) and
+    ordinal item in which some of the categories ``levels`` that other groups used were answered by no one, among
+    the rows analysed (every answer with ``pairwise``, the complete rows otherwise); nothing when every group used
+    every category."""
+    found: dict[str, dict[str, list[float]]] = {}
+    answered_everywhere: dict[str, set] = {}
+    for frame, where in zip(frames, wheres):
+        values = numeric_columns(frame, names, source)
+        if not pairwise:
+            values = values[~np.isnan(values).any(axis=1)]
+        for j, name in enumerate(names):
+            if name in continuous:
+                continue
+            column = values[:, j]
+            seen = {float(v) for v in np.unique(column[~np.isnan(column)])}
+            answered_everywhere[name] = seen if name not in answered_everywhere else answered_everywhere[name] & seen
+            empty = [v for v in levels[name] if v not in seen]
+            if empty and seen:
+                found.setdefault(where, {})[name] = empty
+    if found:
+        raise _empty_categories_error(source, found, {name: np.array(sorted(v)) for name, v in answered_everywhere.items()})
+
+
+def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]], seen: dict) -> DataError:
+    """The one message of every empty category: ``found`` maps each group's ' (group ...)' to its items' empty
+    categories, ``seen`` each item's categories answered in every group (what an empty one is recoded as)."""
+    items: dict[str, list[float]] = {}  # each item's empty categories in any group
+    for by_item in found.values():
+        for name, empty in by_item.items():
+            items.setdefault(name, [])
+            items[name] = sorted(set(items[name]) | set(empty))
+    beyond = sorted({v for name, empty in items.items() for v in empty
+                     if len(seen[name]) and (v < min(seen[name]) or v > max(seen[name])) and code_like(v)})  # a code?
+    codes = [f"{v:g}" for v in beyond]
+    first = (f"if {' and '.join(codes)} {'is' if len(codes) == 1 else 'are'} not a real answer (a typing "
+             f"error or a code for no answer), give --missing-codes {','.join(codes)}; if real, " if codes else "")
+    recode = " and ".join(f"'{printable(name)}' ({_merged_into(empty, seen[name])})" for name, empty in items.items()
+                          if len(seen[name]))
+    one_item, one_group = len(items) == 1, len(found) == 1
+    if one_group and one_item:
+        (where, by_item), = found.items()
+        (name, empty), = by_item.items()
+        said = f"{source}{where}: no one answered {_categories(empty)} on ordinal item '{printable(name)}', which other groups used"
+    else:
+        listed = "; ".join(f"in{where.replace(' (', ' ', 1).rstrip(')')}: " + ", ".join(
+            f"{_categories(empty)} of '{printable(name)}'" for name, empty in by_item.items()) for where, by_item in found.items())
+        said = (f"{source}: no one answered some categories of {len(items)} ordinal items that other groups used ({listed})"
+                if not one_item else
+                f"{source}: no one answered some categories of ordinal item '{printable(next(iter(items)))}' that other "
+                f"groups used ({listed})")
+    return DataError(f"{said}; thresholds cannot be compared across groups with an empty category. The tool does not "
+                     f"merge categories: {first}in a copy of the data file, recode {recode} in every group; or drop "
+                     f"{'the item' if one_item else 'those items'} from the model, or leave "
+                     f"{'this group' if one_group else 'those groups'} out with a row filter (--keep)")
 
 
 def _merged_into(empty, seen) -> str:

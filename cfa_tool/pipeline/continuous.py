@@ -12,10 +12,10 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.assessment.admissibility import solution_problems
+from cfa_tool.assessment.admissibility import small_group_problems, solution_problems
 from cfa_tool.data.descriptives import item_shape
 from cfa_tool.assessment.convergence import nonconvergence_message
-from cfa_tool.assessment.diagnostics import case_diagnostics, normalized_residuals
+from cfa_tool.assessment.diagnostics import case_diagnostics, incomplete_case_diagnostics, normalized_residuals
 from cfa_tool.assessment.fit_indices import (baseline_chi_square, cfi_value, fit_indices, normal_theory_parts,
                                              rmsea_value, srmr, srmr_value)
 from cfa_tool.assessment.identification import check_counting_rule, check_information_rank
@@ -290,8 +290,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         evaluation = likelihood.evaluate(theta)
         if evaluation is not None and np.all(np.isfinite(evaluation.information)):
             check_information_rank(evaluation.information, table.free_labels)
-    problems = solution_problems(table, mats, theta, cov_theta if est.converged else None, est.converged, est.message,
-                                 options.max_iterations)
+    problems = small_group_problems(table, [m.n_obs for _, m in groups]) + tuple(solution_problems(
+        table, mats, theta, cov_theta if est.converged else None, est.converged, est.message, options.max_iterations))
 
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized)
 
@@ -318,7 +318,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 normality=mardia(gm.rows, whitened, _frequency_weights(gm)) if whitened is not None else None,
                 **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics,
                                      spec.reverse_keyed or None, spec.method_factors | spec.exploratory_factors, whitened,
-                                     likelihood.sigma_inverse(theta, g) if hasattr(likelihood, "sigma_inverse") else None),
+                                     likelihood.sigma_inverse(theta, g) if hasattr(likelihood, "sigma_inverse") else None,
+                                     likelihood.patterns[g].rows if hasattr(likelihood, "patterns") else None),
             )
         )
     for g, result in enumerate(group_results):
@@ -402,8 +403,9 @@ def estimate_rows(table: ParameterTable, values: np.ndarray, inference, standard
 def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: np.ndarray, wanted: bool,
                        declared: dict[str, tuple[float, float]] | None, not_traits: frozenset[str] = frozenset(),
                        whitened: Whitened | None = None,
-                       inverse: tuple[np.ndarray, float] | None = None) -> dict:
+                       inverse: tuple[np.ndarray, float] | None = None, gap_rows: np.ndarray | None = None) -> dict:
     """Reliability, normalized residuals and case diagnostics of one group (skipped by workflows that refit often);
+    ``gap_rows``: under full-information ML, the group's rows with their gaps (NaN), in the order of its row numbers;
     ``declared``: the reverse-keyed items of a 'reversed' statement, if any; ``whitened`` and ``inverse``: the
     whitened rows and (Sigma^-1, log|Sigma|), shared with Mardia's tests and the estimation."""
     if not wanted:
@@ -414,6 +416,10 @@ def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: n
            "normalized_residuals": normalized_residuals(gm.covariance, sigma, gm.n_obs)}
     if gm.rows is not None and not np.isnan(gm.rows).any():
         unusual, influential = case_diagnostics(gm.rows, sigma, m.row_numbers, whitened=whitened, inverse=inverse)
+        out.update(unusual_cases=tuple(unusual), influential_cases=tuple(influential))
+    elif gap_rows is not None:  # full-information ML: distances on the items each row answered
+        unusual, influential = incomplete_case_diagnostics(gap_rows, mats.implied_mean(), sigma, (gm.mean, gm.covariance),
+                                                           m.row_numbers)
         out.update(unusual_cases=tuple(unusual), influential_cases=tuple(influential))
     return out
 

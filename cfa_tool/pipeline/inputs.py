@@ -25,7 +25,7 @@ from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_desi
                                          refuse_shared_clusters)
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
-from cfa_tool.errors import EstimationError, ModelError, OptionError, printable
+from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, printable
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
@@ -325,11 +325,15 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                                                  (id_column,) if isinstance(id_column, str) else ())
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
+    if id_column is not None:
+        _id_can_apply(spec, ordinal, fit_options)
     loaded = analysed_odd_values(loaded, spec, group)
     with odd_values_named(loaded):
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                        ordinal_estimator, design), ids_by_row_number(ids, frame))
     result = with_missing_reading(with_odd_values(result, loaded), loaded, missing_codes)
+    if spec.reversed:  # rows with one answer throughout contradict reverse-worded items
+        result = with_same_answer_rows(result, _labelled(frame, group), spec, ids_by_row_number(ids, frame))
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 
@@ -344,6 +348,24 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     if not codes and not marked:
         return result
     return replace(result, data=replace(result.data, missing_codes=codes, non_answers=marked))
+
+
+def _id_can_apply(spec: Spec, ordinal, fit_options: FitOptions) -> None:
+    """An id column names rows in the table of rows that contribute most to the chi-square (fits of continuous
+    items with the diagnostics) and in the caution about rows with one answer throughout (models with reverse-keyed
+    items): an :class:`OptionError` when the fit has neither, since the option could not apply."""
+    if spec.reverse_keyed:
+        return
+    if ordinal_items_of(spec, ordinal):
+        why = "a fit of ordinal items does not have"
+    elif not fit_options.diagnostics:
+        why = "a fit without its diagnostics (diagnostics=False) does not have"
+    else:
+        return
+    raise OptionError(f"the id column (--id) cannot apply: it names rows in the table of rows that contribute most to "
+                      f"the chi-square, which {why}, and in the caution about rows that gave one answer to every item, "
+                      f"which needs reverse-worded items (a 'reversed' statement); leave it out ('scores' takes --id "
+                      f"to name each scored row)")
 
 
 def odd_value_problems(loaded: LoadedData) -> tuple:
@@ -375,6 +397,52 @@ def with_odd_values(result, loaded: LoadedData):
     better."""
     found = tuple(p for p in odd_value_problems(loaded) + few_answers_problems(result)
                   if p not in result.problems)  # said once (scores of the fitted file, say)
+    return replace(result, problems=found + tuple(result.problems)) if found else result
+
+
+SAME_ANSWER_ROWS_SHOWN = 10  # rows a caution about same-answer rows names before 'and N more'
+
+
+def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict) -> tuple:
+    """A caution naming the rows of ``frame`` (the rows analysed) that gave one answer to every item, the items of
+    the model's 'reversed' statement included (data.same_answers: careless responding, Johnson 2005; Curran 2016),
+    by data-row number and id (``ids``: data-row number -> id); () when the model declares no reversed items or no
+    row did.  The rows stay in the analysis."""
+    if not spec.reversed:
+        return ()
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.same_answers import same_answer_rows
+
+    declared = spec.reverse_keyed
+    items = [x for x in spec.observed_names if x in frame.columns]
+    if len(items) < 2:
+        return ()
+    values = frame[items].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
+    found = same_answer_rows(values, row_numbers(frame), np.array([x in declared for x in items]))
+    if found is None:
+        return ()
+    shown = [f"{r} ({printable(ids[r])})" if ids.get(r) is not None else str(r)
+             for r in found.rows[:SAME_ANSWER_ROWS_SHOWN]]
+    more = len(found.rows) - len(shown)
+    n = len(found.rows)
+    one = n == 1
+    answers = sorted(set(found.answers))
+    gave = (f"the answer {answers[0]:g}" if len(answers) == 1 else
+            "one answer each (" + ", ".join(f"{a:g}" for a in answers) + ")")
+    rows = f"data row{'' if one else 's'} {', '.join(shown)}" + (f" and {more} more" if more else "")
+    return (Problem(ProblemKind.SAME_ANSWER_ROWS, (), float(n),
+                    f"{n} {'row' if one else 'rows'} gave {gave} to every item {'it' if one else 'they'} answered, the "
+                    f"{found.reversed_items} reverse-worded items included ({rows}): agreeing alike with an item and "
+                    f"its reversal suggests careless responding (a long string of identical answers; Johnson 2005, "
+                    f"Curran 2016). {'It is' if one else 'They are'} kept in this analysis.",
+                    f"check {'this row' if one else 'these rows'} in the data; if {'it was' if one else 'they were'} "
+                    f"not answered with care, fit again without {'it' if one else 'them'} (a --keep filter on an id "
+                    f"column, or deleting {'it' if one else 'them'} from a copy of the file) and compare the results."),)
+
+
+def with_same_answer_rows(result, frame: pd.DataFrame, spec: Spec, ids: dict):
+    """``result`` (anything with ``problems``) with :func:`same_answer_problems` first (said once)."""
+    found = tuple(p for p in same_answer_problems(frame, spec, ids) if p not in result.problems)
     return replace(result, problems=found + tuple(result.problems)) if found else result
 
 
@@ -417,9 +485,19 @@ def analysed_odd_values(loaded: LoadedData, spec: Spec, group: str | None) -> Lo
 @contextmanager
 def odd_values_named(loaded: LoadedData):
     """An estimation that fails on data holding values that look like no answers says so first: they are the
-    likelier cause than the iterations or the identification the failure's own advice names."""
+    likelier cause than the iterations or the identification the failure's own advice names; a data error about a
+    row that the reading found to look like a row of totals or means (a fractional answer of an ordinal item in it)
+    says that first, with the way to leave the row out."""
     try:
         yield
+    except RowDataError as exc:  # a data row the reading already found to look like no one's answers: said first
+        from cfa_tool.data.odd_values import OddKind
+
+        odd = next((o for o in loaded.odd_values if o.kind is not OddKind.MISSING_CODE and exc.row in o.rows), None)
+        if odd is None:
+            raise
+        raise DataError(f"{odd.caution(loaded.source)} What to try first: {odd.advice()} "
+                        f"Then: {exc}") from None
     except EstimationError as exc:
         if not loaded.odd_values:
             raise
@@ -630,7 +708,11 @@ def _description(spec: Spec, groups: tuple[str, ...] | None, ordinal_items: tupl
 def converged(result: FitResult) -> FitResult:
     """``result`` if its estimation converged; otherwise the EstimationError that says why."""
     if not result.converged:
-        raise EstimationError(f"the estimation did not converge: {result.message}")
+        from cfa_tool.assessment.admissibility import ProblemKind
+
+        # a group with fewer rows than its model's parameters: the likeliest cause, said first
+        small = "".join(f"group {p.group}: {p.explanation} " for p in result.problems if p.kind is ProblemKind.SMALL_GROUP)
+        raise EstimationError(f"{small[:1].upper()}{small[1:]}the estimation did not converge: {result.message}")
     return result
 
 
@@ -819,6 +901,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     coverage.  A sampling design (``weights``, ``cluster``, ``strata``, ``weight_kind``, as for :func:`fit`) is
     checked as the fit checks it and stated: the sum of the weights, Kish's effective sample size, the
     clusters and strata, with the caution a fit would give about too few clusters."""
+    from cfa_tool.assessment.admissibility import group_parameter_counts, small_group_problems
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
@@ -879,6 +962,10 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
-                       odd_value_problems(loaded), len(frame) - len(answered), odd_complete,
-                       len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted)
+                       odd_value_problems(loaded) + (() if ordinal_items else  # (thresholds: counted by the fit)
+                                                     small_group_problems(table, [m.n_obs for _, m in groups])),
+                       len(frame) - len(answered), odd_complete,
+                       len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,
+                       group_rows=tuple(m.n_obs for _, m in groups) if labels else (),
+                       group_parameters=tuple(group_parameter_counts(table)) if labels and not ordinal_items else ())
 

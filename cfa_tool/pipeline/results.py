@@ -101,6 +101,10 @@ class CheckResult(Presentable):
     counted: tuple[float, float, float, float] | None = None
     #: summary statistics (data.summary_stats.AnalysedMatrix): no rows, so no row counts or coverage; ``rows`` is N
     analysed: object | None = None
+    #: with groups, the rows each group would be fitted with (as ``groups``), and the free parameters of each group's
+    #: model
+    group_rows: tuple[int, ...] = ()
+    group_parameters: tuple[int, ...] = ()
 
     @property
     def admissible(self) -> bool:
@@ -111,7 +115,12 @@ class CheckResult(Presentable):
         lines = [f"Caution: {self.caution}"] if self.caution else []
         lines += [f"The model is valid: {len(spec.factors)} factor{'s' if len(spec.factors) != 1 else ''}, "
                  f"{len(spec.observed_names)} indicators, all found in {self.source}."]
-        if self.groups:
+        if self.groups and self.group_rows:
+            lines.append(f"Groups: {len(self.groups)} (" + ", ".join(
+                f"{g}: {n} row{'s' if n != 1 else ''}" for g, n in zip(self.groups, self.group_rows))
+                + (f"; the model has {self.group_parameters[0]} free parameters in each group"
+                   if len(set(self.group_parameters)) == 1 else "") + ").")
+        elif self.groups:
             lines.append(f"Groups: {len(self.groups)} ({', '.join(self.groups)}).")
         if self.analysed is not None:
             lines.append(f"Data: summary statistics, {self.analysed.value}, with N = {self.rows} as given in the file; "
@@ -154,6 +163,9 @@ class CheckResult(Presentable):
                 "rows_with_gaps": self.with_gaps, "rows_without_answers": self.empty,
                 "complete_rows_by_values_not_answers": self.complete_by_odd_values, "coverage": dict(self.coverage),
                 "groups": list(self.groups) if self.groups else None,
+                "group_rows": dict(zip(self.groups, self.group_rows)) if self.groups and self.group_rows else None,
+                "group_free_parameters": (dict(zip(self.groups, self.group_parameters))
+                                          if self.groups and self.group_parameters else None),
                 "design": self.design.to_dict() if self.design is not None else None, "caution": self.caution,
                 "rows_without_group": self.without_group, "rows_in_file": self.rows_in_file,
                 "problems": [p.to_dict() for p in self.problems],

@@ -719,15 +719,19 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
     note = ("HTMT: heterotrait-monotrait ratio of the keyed items, in absolute value (Henseler, Ringle & Sarstedt "
             "2015); common practice reads values above .85 (or .90) as a sign that two factors are not distinct. "
             "sqrt(AVE) > |r|: both factors' average variance extracted exceeds their squared correlation (Fornell & "
-            "Larcker 1981). The interval of a correlation is shown when both factors are scaled by their variances "
-            "(then their covariance is the correlation).")
-    if reasons:
-        note += " " + " ".join(reasons)
+            "Larcker 1981).")
     columns = [("Factor", "l"), ("Factor", "l"), ("r", "r"), ("95% CI", "r"), ("HTMT", "r"), ("AVE", "r"),
                ("sqrt(AVE) > |r|", "l")]
     if not any(row[3] for row in body):  # no interval to show (factors scaled by a marker or effects coding)
         columns.pop(3)
         body = [row[:3] + row[4:] for row in body]
+        note += (" No interval of r is shown: none of these correlations is a parameter of the model (it is one when "
+                 "both factors are scaled by their variances, as 'scale latent by variance' in the model does).")
+    else:
+        note += (" The interval of a correlation is shown when both factors are scaled by their variances (then their "
+                 "covariance is the correlation).")
+    if reasons:
+        note += " " + " ".join(reasons)
     return _table(f"distinct_{group}", "Are the factors distinct?", columns, body, _unusable(result) + note,
                   _all_if_unusable(result, body),
                   values=(["Factor", "Factor", "r", "95% CI lower", "95% CI upper", "HTMT", "AVE (first)", "AVE (second)",
@@ -771,15 +775,26 @@ def case_table(result, group: int = 0) -> ReportTable | None:
     if not cases:
         return None
     named = any(c.id is not None for c in cases)
-    ids = [[c.id or ""] if named else [] for c in cases[:5]]
+    gaps = any(c.answered is not None for c in cases)  # full-information ML: distances on the items answered
+    shown = cases[:5]
+    ids = [[c.id or ""] if named else [] for c in shown]
+    headers = (["Data row"] + (["Id"] if named else []) + ["Contribution to chi-square"]
+               + (["Items answered"] if gaps else []) + ["Squared Mahalanobis distance"]
+               + (["Squared distance under the model"] if gaps else []) + ["p"])
+    values = [[c.row, *i, c.chi_square_share] + ([c.answered] if gaps else []) + [c.mahalanobis]
+              + ([c.model_mahalanobis] if gaps else []) + [c.p_value] for c, i in zip(shown, ids)]
+    body = [[str(c.row), *i, num(c.chi_square_share, 2)] + ([str(c.answered)] if gaps else []) + [num(c.mahalanobis, 2)]
+            + ([num(c.model_mahalanobis, 2)] if gaps else []) + [p_value(c.p_value)] for c, i in zip(shown, ids)]
+    note = ("Each row's contribution (in chi-square units; negative for a row the model fits better than the saturated "
+            "model does) sums over all rows to the chi-square; large contributions and distances point at rows worth "
+            "checking.")
+    if gaps:
+        note += (" With missing answers each row is measured on the items it answered (Yuan & Bentler 2000; Enders "
+                 "2010): the squared Mahalanobis distance from the estimated means and covariances of all rows "
+                 "(saturated, by EM), whose p comes from a chi-square with as many degrees of freedom as items "
+                 "answered, and the distance under the fitted model.")
     return _table(f"cases_{group}", "Rows that contribute most to the chi-square",
-                  [("Data row", "r")] + ([("Id", "l")] if named else [])
-                  + [("Contribution to chi-square", "r"), ("Squared Mahalanobis distance", "r"), ("p", "r")],
-                  [[str(c.row), *i, num(c.chi_square_share, 2), num(c.mahalanobis, 2), p_value(c.p_value)]
-                   for c, i in zip(cases[:5], ids)],
-                  "Each row's contribution (in chi-square units; negative for a row the model fits better than the saturated model does) sums over all rows to the chi-square; large contributions and distances point at rows worth checking.",
-                  values=(["Data row"] + (["Id"] if named else []) + ["Contribution to chi-square", "Squared Mahalanobis distance", "p"],
-                          [[c.row, *i, c.chi_square_share, c.mahalanobis, c.p_value] for c, i in zip(cases[:5], ids)]))
+                  [(h, "l" if h == "Id" else "r") for h in headers], body, note, values=(headers, values))
 
 
 def item_table(result) -> ReportTable:
@@ -1007,9 +1022,8 @@ def normality_lines(result) -> list[str]:
         lines.append(line)
     if not lines and result.method.full_information and not result.method.ordinal:
         # said, not silently left out: both need every row complete
-        lines.append("Mardia's tests of multivariate normality and the table of rows that contribute most to the "
-                     "chi-square need complete rows, so with full-information ML they are not computed; "
-                     f"{Remedy.COMPLETE_ROWS.said()} gives them for those rows, and "
+        lines.append("Mardia's tests of multivariate normality need complete rows, so with full-information ML they "
+                     f"are not computed; {Remedy.COMPLETE_ROWS.said()} gives them for those rows, and "
                      f"{Remedy.ROBUST.said()} guard the test and the standard errors against non-normal "
                      "answers either way.")
     return lines

@@ -778,13 +778,17 @@ def _inadmissible_phrase(results) -> str:
             f"the power, coverage and bias figures")
 
 
-def not_carried_line(not_carried) -> list[str]:
-    """What an earlier fit's data had that simulated rows do not: said beside what was simulated."""
+def not_carried_line(not_carried, power: bool = True) -> list[str]:
+    """What an earlier fit's data had that simulated rows do not: said beside what was simulated (``power``: the
+    report gives power and coverage figures of such samples; without it, simulated data only)."""
     if not not_carried:
         return []
-    return [f"The earlier fit's {word_list(list(not_carried))} {'are' if len(not_carried) > 1 else 'is'} not carried "
-            f"over: every simulated row is independent, equally weighted and complete, so the figures are those of "
-            f"such a sample (with a design effect or missing answers, power is lower)."]
+    said = (f"The earlier fit's {word_list(list(not_carried))} {'are' if len(not_carried) > 1 else 'is'} not carried "
+            f"over: every simulated row is independent, equally weighted and complete")
+    if power:
+        return [f"{said}, so the figures are those of such a sample (with a design effect or missing answers, power "
+                f"is lower)."]
+    return [f"{said} (--missing removes a share of the answers completely at random)."]
 
 
 def few_replications(replications: int) -> tuple[str, ...]:
@@ -888,7 +892,7 @@ def population_report(simulated) -> Report:
             + (f", {len(cut)} ordinal items cut at the fitted thresholds (answers 1 to k)"
                if cut and not simulated.categories else "")
             + (f", {100 * simulated.missing:g}% of answers removed completely at random" if simulated.missing else "") + ".")
-    carried = [] if simulated.missing else not_carried_line(population.not_carried)  # --missing gives gaps itself
+    carried = [] if simulated.missing else not_carried_line(population.not_carried, power=False)  # --missing: gaps
     return Report(ResultKind.SIMULATE, "Simulated data", None, (made, line, *carried), (table,))
 
 

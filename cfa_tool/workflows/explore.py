@@ -309,13 +309,20 @@ def column_role(name: str) -> str | None:
 
 def _text_columns_phrase(frame: pd.DataFrame, numeric: tuple[str, ...]) -> str:
     """The columns left out because they hold text (answers written as words among them: 'yes'/'no'), named, with
-    the way to explore them (new-user trial: six yes/no items left out without a word)."""
-    text = [str(c) for c in frame.columns if str(c) not in numeric and frame[c].notna().any()]
-    if not text:
-        return ""
-    shown = ", ".join(printable(c) for c in text[:10]) + (f" and {len(text) - 10} more" if len(text) > 10 else "")
-    return (f" Left out as text (not numbers): {shown}; answers written as words (yes/no, agree) must be recoded as "
-            f"numbers to be explored.")
+    the way to explore them (new-user trial: six yes/no items left out without a word); columns of dates or times
+    (an Excel date column, say) are named as dates, not as text."""
+    left = [c for c in frame.columns if str(c) not in numeric and frame[c].notna().any()]
+    dates = [str(c) for c in left if frame[c].dtype.kind in "mM" or isinstance(frame[c].dtype, pd.DatetimeTZDtype)]
+    text = [str(c) for c in left if str(c) not in dates]
+
+    def listed(names: list[str]) -> str:
+        return ", ".join(printable(c) for c in names[:10]) + (f" and {len(names) - 10} more" if len(names) > 10 else "")
+
+    said = f" Left out as dates or times: {listed(dates)}." if dates else ""
+    if text:
+        said += (f" Left out as text (not numbers): {listed(text)}; answers written as words (yes/no, agree) must be "
+                 f"recoded as numbers to be explored.")
+    return said
 
 
 def _looks_like_row_ids(column: pd.Series) -> bool:

@@ -247,7 +247,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     a solution's scores would mean nothing.
     """
     from cfa_tool.pipeline import inputs as api
-    from cfa_tool.data.row_ids import duplicate_note, row_ids
+    from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 
     group_column(group)
     if api.summary_source(data):
@@ -280,6 +280,9 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
             raise EstimationError(f"the fitted solution is not admissible ({why}), so no factor scores are written; "
                                   f"run 'fit' to see its problems")
     result = api.with_odd_values(result, loaded)
+    # rows that gave one answer to every item, reverse-worded ones included: named first, scored like every row
+    if spec.reversed:
+        result = api.with_same_answer_rows(result, api._labelled(frame, group), spec, ids_by_row_number(ids, read_frame))
     fitted_rows = _fitted_rows(frame, design, spec, group, source)
     if ordinal_items:
         chosen = (ScoreMethod.EXPECTED_A_POSTERIORI,)

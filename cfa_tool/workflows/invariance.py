@@ -21,6 +21,7 @@ from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ord
                                       make_options, moments_for, odd_value_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
                                       with_missing_reading)
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
@@ -304,10 +305,13 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 result = with_missing_reading(ladder.assess(level_spec, groups, est, fit_options, group), loaded,
                                               missing_codes)
             if not result.converged:
-                why = result.problems[0] if result.problems else None
+                why = next((p for p in result.problems if p.kind is not ProblemKind.SMALL_GROUP), None)
                 reason = (f" ({result.message}). {why.advice}" if why is not None else f" ({result.message})")
-                if not steps:  # nothing to report without a configural model
-                    raise EstimationError(" ".join(data_cautions + (f"the configural model did not converge{reason}",)))
+                if not steps:  # nothing to report without a configural model; a group too small for it first
+                    small = tuple(f"Group {p.group}: {p.explanation}" for p in result.problems
+                                  if p.kind is ProblemKind.SMALL_GROUP)
+                    raise EstimationError(" ".join(data_cautions + small
+                                                   + (f"the configural model did not converge{reason}",)))
                 steps.append(InvarianceStep(level, result, None, False, ()))
                 stopped = (f"the {level} model did not converge{reason}; the ladder stops there"
                            + (", and the partial search could not run at this step" if partial != "none" else ""))
@@ -380,7 +384,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                            + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
                            + "): its fit and its difference test cannot show that invariance holds")
     differences, latent_note, not_estimated = latent_differences(steps)
-    return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + tuple(warnings), rule,
+    # groups with fewer rows than their configural model's free parameters: every step's comparison rests on them
+    small = tuple(f"Group {p.group}: {p.line()}" for p in steps[0].result.problems if p.kind is ProblemKind.SMALL_GROUP)
+    return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + small + tuple(warnings), rule,
                             differences, latent_note, not_estimated, tuple(notes))
 
 

@@ -228,3 +228,65 @@ def test_ordinal_reliability_is_keyed_too(keyed_scale):
         assert keyed[f].omega == pytest.approx(plain[f].omega, rel=1e-6)
         assert keyed[f].alpha == pytest.approx(plain[f].alpha, rel=1e-6)
         assert keyed[f].sum_score_sd is None  # sums of latent responses are not reported
+
+
+# ---------------------------------------------------------------- case diagnostics of rows with gaps (full-information ML)
+
+def _with_gaps(hs_data):
+    data = hs_data.reset_index(drop=True)[[f"x{i}" for i in range(1, 10)]].copy()
+    rng = np.random.default_rng(8)  # a fixed seed: about 8% of the answers left out
+    data = data.mask(rng.random(data.shape) < 0.08)
+    data.loc[10, ["x1", "x2", "x3", "x4"]] = [9.5, 9.0, 4.5, 0.2]  # data row 11: far from the others, one gap
+    data.loc[10, "x9"] = np.nan
+    return data
+
+
+def test_rows_with_gaps_are_measured_on_the_items_they_answered(hs_data):
+    """Each row's share of the full-information chi-square, 2 (log L_i(saturated) - log L_i(model)), and its
+    squared Mahalanobis distance on the items it answered, computed again row by row with scipy's normal
+    density and distance (Yuan & Bentler 2000; Enders 2010, ch. 10: the distance on chi-square with as many
+    df as items answered)."""
+    from scipy.spatial.distance import mahalanobis
+    from scipy.stats import chi2, multivariate_normal
+
+    from cfa_tool.assessment.diagnostics import incomplete_case_diagnostics
+
+    data = _with_gaps(hs_data)
+    result = cfa_tool.fit(THREE_FACTORS, data)
+    assert result.method.full_information
+    g = result.groups[0]
+    mu, sigma, m, S = g.implied_mean, g.implied_covariance, g.sample_mean, g.sample_covariance  # S, m: EM moments
+    rows = data.to_numpy()
+    share, distance, model_distance, p = [], [], [], []
+    for x in rows:
+        o = ~np.isnan(x)
+        share.append(2 * (multivariate_normal(m[o], S[np.ix_(o, o)]).logpdf(x[o])
+                          - multivariate_normal(mu[o], sigma[np.ix_(o, o)]).logpdf(x[o])))
+        distance.append(mahalanobis(x[o], m[o], np.linalg.inv(S[np.ix_(o, o)])) ** 2)
+        model_distance.append(mahalanobis(x[o], mu[o], np.linalg.inv(sigma[np.ix_(o, o)])) ** 2)
+        p.append(chi2.sf(distance[-1], o.sum()))
+    # the shares sum to the full-information chi-square (each row's casewise likelihood, Arbuckle 1996)
+    assert sum(share) == pytest.approx(result.fit.chi_square, rel=1e-6)
+    unusual, influential = incomplete_case_diagnostics(rows, mu, sigma, (m, S), None, top=len(rows))
+    by_row = {c.row: c for c in influential}
+    for k in range(len(rows)):
+        c = by_row[k + 1]
+        assert c.chi_square_share == pytest.approx(share[k], rel=1e-8, abs=1e-9)
+        assert c.mahalanobis == pytest.approx(distance[k], rel=1e-8)
+        assert c.model_mahalanobis == pytest.approx(model_distance[k], rel=1e-8)
+        assert c.p_value == pytest.approx(p[k], rel=1e-6, abs=1e-300)
+        assert c.answered == int((~np.isnan(rows[k])).sum())
+    # the fit's own table: the largest shares first, and the outlying row (data row 11) the least likely one
+    assert [c.row for c in g.influential_cases[:3]] == [int(k) + 1 for k in np.argsort(share)[::-1][:3]]
+    assert g.unusual_cases[0].row == 11 == int(np.argmin(p)) + 1
+    assert g.unusual_cases[0].answered == 8
+
+
+def test_rows_with_gaps_keep_their_data_row_numbers_after_a_filter(hs_data):
+    data = _with_gaps(hs_data)
+    data.insert(0, "keep", "yes")
+    data.loc[:5, "keep"] = "no"  # data rows 1 to 6 left out
+    result = cfa_tool.fit(THREE_FACTORS, data, keep=["keep = yes"])
+    assert result.method.full_information
+    assert result.groups[0].unusual_cases[0].row == 11
+    assert min(c.row for c in result.groups[0].influential_cases) > 6

@@ -250,3 +250,16 @@ def test_text_columns_left_out_are_named(hs_data):
     frame = hs_data[ITEMS].assign(joined=np.where(hs_data.x1 > hs_data.x1.median(), "yes", "no"))
     said = " ".join(cfa_tool.explore(frame, replications=20).summary().split())
     assert "Left out as text (not numbers): joined; answers written as words" in said
+
+
+def test_date_columns_left_out_are_named_as_dates(tmp_path, hs_data):
+    # new-user trial s8: an Excel date column was said to be left out "as text (not numbers)"
+    import cfa_tool
+
+    frame = hs_data[ITEMS].assign(joined=np.where(hs_data.x1 > hs_data.x1.median(), "yes", "no"),
+                                  visited=pd.date_range("2026-01-05", periods=len(hs_data), freq="D"))
+    path = tmp_path / "dated.xlsx"
+    frame.to_excel(path, index=False)
+    said = " ".join(cfa_tool.explore(str(path), replications=20).summary().split())
+    assert "Left out as dates or times: visited." in said
+    assert "Left out as text (not numbers): joined;" in said and "visited;" not in said

@@ -10,6 +10,7 @@ from __future__ import annotations
 import json
 
 import pandas as pd
+import pytest
 
 from cfa_tool.cli import main
 from cfa_tool.data.readers import read_data
@@ -88,3 +89,32 @@ def test_repeated_ids_are_noted_by_fit(tmp_path, hs_data):
     result = cfa_tool.fit("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n",
                           str(path), id_column="code")
     assert any("300 rows repeat an id used by an earlier row (e.g. '007')" in w for w in result.warnings)
+
+
+def test_rows_with_gaps_are_named_by_the_id_column_under_full_information(tmp_path, capsys):
+    # a few blanks make the default fit full-information ML; the case table is there and names its rows
+    raw = pd.read_csv(HS_FILE, index_col=0)
+    gaps = raw.copy()
+    gaps.iloc[::7, gaps.columns.get_loc("x5")] = None
+    path = tmp_path / "gaps.csv"
+    gaps.to_csv(path, index=False)
+    model = tmp_path / "hs.cfa"
+    model.write_text(THREE_FACTORS)
+    code = main(["fit", str(model), "--data", str(path), "--id", "id", "--json", "-"])
+    out = capsys.readouterr()
+    assert code == 0, out.err
+    payload = json.loads(out.out)
+    cases = payload["diagnostics"]["influential_cases"]
+    assert cases and any(case["answered"] == 8 for case in cases + payload["diagnostics"]["unusual_cases"])
+    for case in cases:
+        assert case["id"] == str(raw["id"].iloc[case["row"] - 1])  # the file's own id of that data row
+
+
+def test_an_id_column_that_could_name_nothing_is_an_error(hs_data):
+    import cfa_tool
+    from cfa_tool.errors import OptionError
+
+    frame = hs_data[[f"x{i}" for i in range(1, 10)]].copy()
+    frame.insert(0, "code", [f"{k:04d}" for k in range(1, len(frame) + 1)])
+    with pytest.raises(OptionError, match="the id column .* cannot apply"):
+        cfa_tool.fit(THREE_FACTORS, frame, id_column="code", diagnostics=False)

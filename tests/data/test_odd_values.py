@@ -164,3 +164,21 @@ def test_scores_of_the_fitted_file_say_its_odd_values_once(tmp_path):
     scores = fitted.scores(path)
     said = [p for p in scores.fit.problems if p.kind.value == fitted.problems[0].kind.value]
     assert fitted.problems and len(said) == 1 and said[0] == fitted.problems[0]
+
+
+def test_a_means_row_that_stops_an_ordinal_fit_is_named_as_one_first():
+    # new-user trial s8: the error on an ordinal item's answer 3.24 said "correct the value", not that the reading had
+    # already found its row to be a row of means (the means are computed here by construction)
+    import cfa_tool
+    from cfa_tool.errors import DataError
+
+    rng = np.random.default_rng(3)
+    latent = rng.normal(size=(200, 1)) @ np.full((1, 6), 0.7) + rng.normal(scale=0.7, size=(200, 6))
+    frame = pd.DataFrame(np.digitize(latent, [-1.0, -0.3, 0.3, 1.0]) + 1.0, columns=[f"q{i}" for i in range(1, 7)])
+    frame.loc[len(frame)] = frame.mean().round(2)  # data row 201: the means of the rows above
+    with pytest.raises(DataError) as found:
+        cfa_tool.fit("factor f: q1..q6\n", frame, ordinal="all")
+    message = str(found.value)
+    assert message.startswith("Data row 201 of <data frame> holds the means of the other rows' answers")
+    assert "leave it out with a --keep filter" in message
+    assert message.index("What to try first") < message.index("has the answer") < message.index("in data row 201")

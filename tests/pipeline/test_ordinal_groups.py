@@ -143,6 +143,29 @@ def test_score_tests_behave_like_chi_square_one_under_a_correct_model():
     assert 0.6 < np.mean(values) < 1.5
 
 
+def test_every_empty_category_of_every_group_is_named_in_one_message():
+    # planted by construction: south never uses category 5 of q2 nor 1 of q5; east never uses 5 of q2 nor 1 of q3
+    a, b, c = _draw(300, 1), _draw(300, 2), _draw(300, 3)
+    b.loc[b.q2 == 5, "q2"] = 4
+    b.loc[b.q5 == 1, "q5"] = 2
+    c.loc[c.q2 == 5, "q2"] = 4
+    c.loc[c.q3 == 1, "q3"] = 2
+    data = pd.concat([a.assign(site="north"), b.assign(site="south"), c.assign(site="east")], ignore_index=True)
+    with pytest.raises(DataError) as found:
+        cfa_tool.fit(MODEL, data, group="site")
+    message = str(found.value)
+    assert "some categories of 3 ordinal items that other groups used" in message
+    assert ("in group 'east' of site: category 5 of 'q2', category 1 of 'q3'; "
+            "in group 'south' of site: category 5 of 'q2', category 1 of 'q5'") in message  # groups in their order
+    # one recoding for every group, each empty category into its nearest one answered in every group
+    assert "recode 'q2' (5 as 4) and 'q3' (1 as 2) and 'q5' (1 as 2) in every group" in message
+    assert "leave those groups out" in message
+    # the recoding it gives lets the fit run (no second round of messages)
+    for x, (old, new) in {"q2": (5, 4), "q5": (1, 2), "q3": (1, 2)}.items():
+        data.loc[data[x] == old, x] = new
+    assert cfa_tool.fit(MODEL, data, group="site").converged
+
+
 def test_errors_for_groups_with_ordinal_items():
     a, b = _draw(300, 1), _draw(300, 2)
     b.loc[b.q2 == 4, "q2"] = 3  # the south group never uses category 4 of q2

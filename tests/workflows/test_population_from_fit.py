@@ -183,6 +183,13 @@ def test_what_the_earlier_fit_had_and_the_simulation_has_not_is_said(tmp_path, h
     said = " ".join(run("power-simulation", str(tmp_path / "m.cfa"), "--n", "200", "--replications", "100",
                         "--workers", "1", "--population-from", str(plain)).stdout.split())
     assert "not carried over" not in said and "Only 100 replications" not in said
+    # simulate draws the same rows but reports no power: its report says so without a word on power (new-user trial s8)
+    proc = run("simulate", str(tmp_path / "m.cfa"), "--n", "50", "--output", str(tmp_path / "rows.csv"),
+               "--population-from", str(tmp_path / "fit.json"))
+    assert proc.returncode == 0, proc.stderr
+    said = " ".join(proc.stdout.split())
+    assert "not carried over: every simulated row is independent, equally weighted and complete (--missing" in said
+    assert "power" not in said
 
 
 def test_categories_with_a_continuous_fit_are_named_as_such(tmp_path):

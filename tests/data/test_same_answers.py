@@ -1,0 +1,75 @@
+"""Rows that gave one answer to every item, reverse-worded ones included (data.same_answers): a long string of
+identical answers, the simplest index of careless responding (Johnson 2005; Curran 2016).  The expected rows are
+planted by construction in simulated answers (a fixed seed), so the test knows them without the tool."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.data.same_answers import same_answer_rows
+from tests.conftest import simulate_cfa
+
+MODEL = "factor f: a1, a2, a3, a4\nfactor g: b1, b2, b3, b4\n"
+REVERSED = "reversed a2, b3 on 1 to 5\n"
+
+
+def _answers(seed: int = 5) -> pd.DataFrame:
+    """Two factors of four five-point items, a2 and b3 reverse-keyed (negative population loadings), N = 300."""
+    loadings = np.zeros((8, 2))
+    loadings[:4, 0] = [0.7, -0.6, 0.7, 0.6]
+    loadings[4:, 1] = [0.6, 0.7, -0.7, 0.6]
+    phi = np.array([[1.0, 0.3], [0.3, 1.0]])
+    theta = np.diag(1 - np.diag(loadings @ phi @ loadings.T))
+    names = ["a1", "a2", "a3", "a4", "b1", "b2", "b3", "b4"]
+    latent = simulate_cfa(loadings, phi, theta, n=300, seed=seed, names=names)
+    frame = latent.apply(lambda x: 1 + np.searchsorted([-1.2, -0.4, 0.4, 1.2], x)).astype(float)
+    frame.insert(0, "respondent", [f"P{k:03d}" for k in range(1, 301)])
+    return frame
+
+
+def _planted(frame: pd.DataFrame) -> pd.DataFrame:
+    frame = frame.copy()
+    items = [c for c in frame.columns if c != "respondent"]
+    frame.loc[6, items] = 5.0  # data row 7: 5 to every item
+    frame.loc[40, items] = 1.0  # data row 41: 1 to every item ...
+    frame.loc[40, "a1"] = np.nan  # ... but one it left blank
+    frame.loc[99, items] = 3.0  # data row 100: 3 to all but one
+    frame.loc[99, "b4"] = 4.0
+    return frame
+
+
+def test_the_rows_with_one_answer_throughout_are_found():
+    values = np.array([[5, 5, 5, 5], [1, 1, np.nan, 1], [3, 3, 3, 4], [2, 2, np.nan, np.nan], [np.nan] * 4, [4, 4, 4, 4]],
+                      dtype=float)
+    reversed_items = np.array([False, True, False, False])
+    found = same_answer_rows(values, np.arange(1, 7), reversed_items)
+    # rows 1, 2, 4 and 6 answered one value throughout (rows 2 and 4 with gaps: row 4 answered half the items, the
+    # least that counts, the reversed a2 among them); row 3 did not; row 5 answered nothing
+    assert found.rows == (1, 2, 4, 6) and found.answers == (5.0, 1.0, 2.0, 4.0)
+    assert found.items == 4 and found.reversed_items == 1
+    # a row that skipped every reverse-keyed item does not contradict itself
+    assert same_answer_rows(np.array([[5, np.nan, 5, 5]]), np.array([1]), reversed_items) is None
+    # without reverse-keyed items there is nothing to judge
+    assert same_answer_rows(values, np.arange(1, 7), np.zeros(4, dtype=bool)) is None
+
+
+def test_fit_and_scores_name_the_rows_first_by_their_ids_and_keep_them():
+    frame = _planted(_answers())
+    result = cfa_tool.fit(MODEL + REVERSED, frame, id_column="respondent")
+    first = result.problems[0]
+    assert first.kind is ProblemKind.SAME_ANSWER_ROWS and not first.kind.inadmissible and result.admissible
+    assert first.value == 2.0
+    assert "2 rows gave one answer each (1, 5)" in first.explanation
+    assert "data rows 7 (P007), 41 (P041)" in first.explanation and "P100" not in first.explanation
+    assert result.n_obs == 300  # kept in the analysis
+    scored = cfa_tool.scores(MODEL + REVERSED, frame, id_column="respondent")
+    assert scored.fit.problems[0] == first
+    assert scored.table["respondent"].tolist()[6] == "P007" and not np.isnan(scored.table.iloc[6, 1])
+    # the same data without a 'reversed' statement: one answer throughout contradicts nothing the model knows
+    assert not any(p.kind is ProblemKind.SAME_ANSWER_ROWS for p in cfa_tool.fit(MODEL, frame).problems)
+    # and data without such rows have no caution (common practice: no false alarm on ordinary answers)
+    assert not any(p.kind is ProblemKind.SAME_ANSWER_ROWS for p in cfa_tool.fit(MODEL + REVERSED, _answers()).problems)

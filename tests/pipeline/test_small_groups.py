@@ -1,0 +1,58 @@
+"""Groups with fewer rows than their model's free parameters: a caution first in fit, invariance and check, and
+check's row count of each group.  The parameter count is by hand for the three-factor model of Holzinger &
+Swineford (1939) in the multi-group (configural) form: 6 free loadings, 9 residual variances, 3 factor variances,
+3 factor covariances and 9 intercepts = 30 per group (factor means fixed at zero when intercepts are free)."""
+
+from __future__ import annotations
+
+import pytest
+
+import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
+from tests.conftest import THREE_FACTORS
+
+ITEMS = [f"x{i}" for i in range(1, 10)]
+
+
+@pytest.fixture(scope="module")
+def three_schools(hs_data):
+    data = hs_data.reset_index(drop=True)[ITEMS + ["school"]].copy()
+    small = data.index[data.school == "Pasteur"][:28]
+    data.loc[small, "school"] = "Annex"  # 28 rows, fewer than the 30 parameters of a group's model
+    return data
+
+
+def test_a_group_smaller_than_its_model_is_named_first(three_schools):
+    result = cfa_tool.fit(THREE_FACTORS, three_schools, group="school")
+    small = [p for p in result.problems if p.kind is ProblemKind.SMALL_GROUP]
+    assert len(small) == 1 and small[0].group == "Annex" and small[0].value == 28.0
+    assert "28 rows for the 30 free parameters of this group's model" in small[0].explanation
+    assert "rule of thumb" in small[0].explanation and not small[0].kind.inadmissible
+    assert result.problems[0] is small[0]
+    # groups of 145 and 128 rows are not named, nor is anything without groups
+    assert not any(p.kind is ProblemKind.SMALL_GROUP for p in cfa_tool.fit(THREE_FACTORS, three_schools).problems)
+
+
+def test_check_lists_each_groups_rows_and_the_caution(three_schools):
+    found = cfa_tool.check(THREE_FACTORS, three_schools, group="school")
+    counts = three_schools.school.value_counts()
+    assert dict(zip(found.groups, found.group_rows)) == {g: int(counts[g]) for g in found.groups}
+    assert set(found.group_parameters) == {30}
+    assert "Annex: 28 rows" in found.summary() and "30 free parameters in each group" in found.summary()
+    assert [p.group for p in found.problems if p.kind is ProblemKind.SMALL_GROUP] == ["Annex"]
+
+
+def test_invariance_names_the_small_group_first(three_schools):
+    from cfa_tool.workflows.invariance import invariance
+
+    result = invariance(THREE_FACTORS, three_schools, group="school")
+    assert result.warnings[0].startswith("Group Annex: 28 rows for the 30 free parameters")
+
+
+def test_a_fit_that_fails_in_a_small_group_says_so_first(hs_data):
+    from cfa_tool.errors import EstimationError
+
+    data = hs_data.reset_index(drop=True)[ITEMS + ["school"]].copy()
+    data.loc[data.index[data.school == "Pasteur"][:29], "school"] = "Annex"  # 29 rows: the search does not converge
+    with pytest.raises(EstimationError, match=r"^Group Annex: 29 rows for the 30 free parameters.*did not converge"):
+        cfa_tool.fit(THREE_FACTORS, data, group="school")
