@@ -424,9 +424,11 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
     """The fit of rows of raw data (after reading, filters and model checks), its data summary naming the
     row filters and the rows the file held before them."""
     result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
-    if group is not None and result.data.rows_read != len(loaded.frame):  # rows without a group label count as read
+    # rows without a group label, and rows of weight 0 (said in a note), count as read
+    if (group is not None or design is not None) and result.data.rows_read != len(loaded.frame):
         result = replace(result, data=replace(result.data, rows_read=len(loaded.frame),
-                                              rows_dropped=len(loaded.frame) - result.data.n_obs))
+                                              rows_dropped=result.data.rows_dropped
+                                              + len(loaded.frame) - result.data.rows_read))
     if not loaded.row_filters:
         return result
     return replace(result, data=replace(result.data, row_filters=loaded.row_filters,
@@ -442,6 +444,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     if design is not None:
         frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
         notes = list(notes) + design_notes
+        design_test(fit_options, design)  # a chosen information is refused for the design before the missing rows' reason
     if ordinal_items:
         with blas_threads_for(len(spec.observed_names)):
             result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator,
