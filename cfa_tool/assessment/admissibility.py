@@ -57,6 +57,8 @@ class ProblemKind(enum.Enum):
     VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
     # values the data file itself marks as no answer, read as missing (data.non_answers): said, not a problem
     VALUES_READ_AS_MISSING = ("values the file marks as no answer", "read as missing", False)
+    # not of the solution but of the data: group labels that differ only in case ('north', 'North'), kept apart
+    GROUP_LABELS_BY_CASE = ("group labels differing only in case", "labels differing only in case", False)
     # not of the solution but of the data: an item answered by few of the rows (pipeline.inputs.with_odd_values)
     FEW_ANSWERS = ("item answered by few rows", "answered by few rows", False)
     # a method or bifactor-like factor whose standardized loadings are all small (assessment.method_factors)
@@ -133,6 +135,8 @@ class Problem:
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
             K.SMALL_EFFECTIVE_SAMPLE: f"an effective sample size of only {v} under the weights",
+            K.GROUP_LABELS_BY_CASE: "group labels that differ only in upper and lower case, analysed as different "
+                                    "groups",
             K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",

@@ -319,7 +319,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     with odd_values_named(loaded):
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                        ordinal_estimator, design), ids_by_row_number(ids, frame))
-    result = with_odd_values(result, loaded)
+    result = with_odd_values(result, loaded, group)
     codes = missing_codes_option(missing_codes)
     if codes:  # kept with the fit: scores of other data with it read them so too
         result = replace(result, data=replace(result.data, missing_codes=codes))
@@ -327,17 +327,42 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 
 
-def odd_value_problems(loaded: LoadedData) -> tuple:
+def odd_value_problems(loaded: LoadedData, group: str | None = None) -> tuple:
     """Values in the item columns that look like no answers (a missing-value code, a totals row), and those the
     file marks as no answer and that were read as missing (data.non_answers), as cautions that come first in
-    every view (assessment.admissibility.Problem)."""
+    every view (assessment.admissibility.Problem); with a ``group`` column, its labels that differ only in case
+    (:func:`group_case_problems`) first."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    if group is not None:
+        return group_case_problems(loaded.frame, group) + odd_value_problems(loaded)
 
     marked = non_answer_caution(loaded.non_answers, loaded.source,
                                 loaded.items.names if loaded.items is not None else None)
     return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
         Problem(ProblemKind.VALUES_NOT_ANSWERS, (), None, odd.caution(loaded.source), odd.advice())
         for odd in loaded.odd_values)
+
+
+def group_case_problems(frame: pd.DataFrame, group: str) -> tuple:
+    """A caution naming the labels of the group column that differ only in upper and lower case ('north' and
+    'North'), with the rows of each: they are analysed as different groups, and only the user knows whether they
+    are one (they are not merged silently, as labels differing by spaces at their ends are)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.labels import case_variants
+
+    if group not in frame.columns:
+        return ()
+    found = case_variants(frame[group].dropna())
+    if not found:
+        return ()
+    listed = "; ".join(" and ".join(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in variants)
+                       for variants in found)
+    return (Problem(ProblemKind.GROUP_LABELS_BY_CASE, (), float(len(found)),
+                    f"In the group column '{printable(group)}', labels that differ only in upper and lower case are "
+                    f"analysed as different groups: {listed}.",
+                    "if they are one group, recode the column so that they are written alike; if they are different "
+                    "groups, give them labels that differ in more than case."),)
 
 
 def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answers: tuple = ()) -> LoadedData:
@@ -349,11 +374,11 @@ def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answe
                       non_answers=tuple(f for f in non_answers if f.column in set(names)))
 
 
-def with_odd_values(result, loaded: LoadedData):
+def with_odd_values(result, loaded: LoadedData, group: str | None = None):
     """``result`` (anything with ``problems``) with the cautions about its data before its own: those of
-    :func:`odd_value_problems` and of :func:`few_answers_problems`; the fit is not refused, since the user may know
-    better."""
-    found = tuple(p for p in odd_value_problems(loaded) + few_answers_problems(result)
+    :func:`odd_value_problems` (with the ``group`` column's) and of :func:`few_answers_problems`; the fit is not
+    refused, since the user may know better."""
+    found = tuple(p for p in odd_value_problems(loaded, group) + few_answers_problems(result)
                   if p not in result.problems)  # said once (scores of the fitted file, say)
     return replace(result, problems=found + tuple(result.problems)) if found else result
 
@@ -858,6 +883,6 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
-                       odd_value_problems(loaded), len(frame) - len(answered), odd_complete,
+                       odd_value_problems(loaded, group), len(frame) - len(answered), odd_complete,
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted)
 

@@ -165,7 +165,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         if ordinal_items:
             return _compare_ordinal(specs, names, complete, source, group, reference_group,
                                     replace(fit_options, missing=None if pairwise else MissingData.LISTWISE), ordinal_items,
-                                    ordinal_estimator, dropped, design, pairwise, notes, odd_value_problems(loaded))
+                                    ordinal_estimator, dropped, design, pairwise, notes, odd_value_problems(loaded, group))
         results = []
         data_groups = []
         for spec, name in zip(specs, names):
@@ -178,7 +178,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                            if design is not None else result)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
         return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
-                          fit_options.missing, tuple(notes), odd_value_problems(loaded))
+                          fit_options.missing, tuple(notes), odd_value_problems(loaded, group))
 
 
 def _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items, method,
