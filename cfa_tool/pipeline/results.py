@@ -471,6 +471,11 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
 
         problems = tuple(problems) + tuple(weak_factor_problems(estimates, latent, observed, groups, spec.method_factors,
                                                                 spec.exploratory_factors)) + tuple(keying_problems(groups))
+    if len(groups) <= 1:  # one group: rows fewer than the parameters (groups of several: each group's own caution)
+        from cfa_tool.assessment.admissibility import small_sample_problems
+
+        small, notes = small_sample_problems(n_obs, fit.n_free_parameters if fit is not None else len(parameter_labels))
+        problems, warnings = small + tuple(problems), tuple(warnings) + notes
     return FitResult(
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
         estimator=method.sentence(len(groups)), method=method, converged=converged, iterations=iterations,
