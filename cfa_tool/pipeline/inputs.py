@@ -884,5 +884,6 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        sample_design.caution(table.n_free) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
                        odd_value_problems(loaded, group), len(frame) - len(answered), odd_complete,
-                       len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted)
+                       len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,
+                       zero_weight=len(loaded.frame) - len(frame))
 

@@ -88,6 +88,8 @@ class CheckResult(Presentable):
     counted: tuple[float, float, float, float] | None = None
     #: summary statistics (data.summary_stats.AnalysedMatrix): no rows, so no row counts or coverage; ``rows`` is N
     analysed: object | None = None
+    #: rows of weight 0 under sampling or frequency weights: read, and left out before every count above
+    zero_weight: int = 0
 
     @property
     def admissible(self) -> bool:
@@ -105,8 +107,10 @@ class CheckResult(Presentable):
                          f"it holds no rows of answers, so there are no row counts or coverage.")
             lines.extend(f"Note: {note}." for note in self.notes)
             return "\n".join(lines)
-        kept = self.rows + self.without_group
+        kept = self.rows + self.without_group + self.zero_weight
         read = f"{kept} read" if self.rows_in_file is None else f"{self.rows_in_file} read, {kept} kept by the row filter"
+        if self.zero_weight:
+            read += f", {self.zero_weight} of weight 0 (left out)"
         read = (f"{read}, {self.without_group} without a group label (left out), {self.rows} with one:"
                 if self.without_group else f"{read},")
         odd = (f" (and {self.complete_by_odd_values} complete only if the values that look like no answers, named "
@@ -142,7 +146,8 @@ class CheckResult(Presentable):
                 "complete_rows_by_values_not_answers": self.complete_by_odd_values, "coverage": dict(self.coverage),
                 "groups": list(self.groups) if self.groups else None,
                 "design": self.design.to_dict() if self.design is not None else None, "caution": self.caution,
-                "rows_without_group": self.without_group, "rows_in_file": self.rows_in_file,
+                "rows_without_group": self.without_group, "rows_of_weight_zero": self.zero_weight,
+                "rows_in_file": self.rows_in_file,
                 "problems": [p.to_dict() for p in self.problems],
                 "rows_counted_by_frequency_weights": None if self.counted is None else dict(zip(
                     ("read", "complete", "with_gaps", "without_answers"), self.counted)),

@@ -485,6 +485,8 @@ def test_rows_of_weight_zero_are_rows_read_not_analysed(hs_data, group):
     assert result.data.rows_read == len(data) and result.data.n_obs == len(data) - zero
     assert result.data.rows_dropped == zero
     assert any(f"{zero} rows have weight 0 in 'w' and were left out" in n for n in result.warnings)
+    checked = cfa_tool.check(THREE_FACTORS, data, weights="w", group=group)
+    assert checked.zero_weight == zero and f"Rows: {len(data)} read, {zero} of weight 0 (left out)," in checked.summary()
 
 
 def test_a_chosen_information_under_a_cluster_design_is_refused_for_the_design(hs_data):
