@@ -469,7 +469,6 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     if design is not None:
         frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
         notes = list(notes) + design_notes
-        design_test(fit_options, design)  # a chosen information is refused for the design before the missing rows' reason
     if ordinal_items:
         with blas_threads_for(len(spec.observed_names)):
             result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator,
@@ -482,6 +481,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                                   missing_data=summary if gaps else None, labels=_file_labels(loaded, spec)),
                           spec, labels, ordinal_items)
     values = loaded.items.of(frame, spec.observed_names) if loaded.items is not None else None
+    if design is not None:  # a chosen information is refused for the design before the missing rows' reason
+        design_test(fit_options, design)
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values)
     notes = missing_notes + notes
     notes += few_category_notes(frame, spec.observed_names, values)
