@@ -58,6 +58,10 @@ class ProblemKind(enum.Enum):
     VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
     # values the data file itself marks as no answer, read as missing (data.non_answers): said, not a problem
     VALUES_READ_AS_MISSING = ("values the file marks as no answer", "read as missing", False)
+    # not of the solution but of the data: fewer rows than the model has free parameters (one group)
+    SMALL_SAMPLE = ("fewer rows than parameters", "fewer rows than parameters", False)
+    # not of the solution but of the data: group labels that differ only in case ('north', 'North'), kept apart
+    GROUP_LABELS_BY_CASE = ("group labels differing only in case", "labels differing only in case", False)
     # not of the solution but of the data: an item answered by few of the rows (pipeline.inputs.with_odd_values)
     FEW_ANSWERS = ("item answered by few rows", "answered by few rows", False)
     # a method or bifactor-like factor whose standardized loadings are all small (assessment.method_factors)
@@ -75,6 +79,31 @@ class ProblemKind(enum.Enum):
 #: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them
 #: beside the design)
 DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.SMALL_EFFECTIVE_SAMPLE})
+
+
+#: rows per free parameter a common rule of thumb asks for (Bentler & Chou 1987, recalled from memory: at least 5,
+#: better 10); a note below it, not a cutoff of its own
+ROWS_PER_PARAMETER = 5
+
+
+def small_sample_problems(rows: float, free: int) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
+    """For a fit of one group of ``rows`` rows with ``free`` free parameters: a caution (first in every view) when the
+    rows are fewer than the parameters, and otherwise a note when they are fewer than :data:`ROWS_PER_PARAMETER` per
+    parameter (a rule of thumb; Bentler & Chou 1987, recalled from memory).  Returns (problems, notes)."""
+    if free <= 0 or rows >= ROWS_PER_PARAMETER * free:
+        return (), ()
+    thumb = (f"a common rule of thumb, recalled from Bentler & Chou 1987, asks for at least {ROWS_PER_PARAMETER} rows "
+             f"per parameter; a convention, not a law")
+    if rows >= free:
+        return (), (f"{rows:g} rows for the {free} free parameters of the model, fewer than {ROWS_PER_PARAMETER} per "
+                    f"parameter ({thumb}): estimates and fit indices of a sample this small vary much from sample to "
+                    f"sample",)
+    return (Problem(
+        ProblemKind.SMALL_SAMPLE, (), float(rows),
+        f"{rows:g} rows for the {free} free parameters of the model: every estimate and fit index rests on too few "
+        f"answers, and a CFI of 1 or a TLI above 1 then says little about fit (fewer rows than parameters; {thumb}).",
+        "gather more rows, or fit a smaller model (fewer items or factors); do not judge this fit against the guide "
+        "values of the fit indices."),), ()
 
 
 def free_parameters(result) -> int:
@@ -139,6 +168,9 @@ class Problem:
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
             K.SMALL_EFFECTIVE_SAMPLE: f"an effective sample size of only {v} under the weights",
+            K.SMALL_SAMPLE: f"fewer rows ({v.split('.')[0]}) than free parameters of the model",
+            K.GROUP_LABELS_BY_CASE: "group labels that differ only in upper and lower case, analysed as different "
+                                    "groups",
             K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",

@@ -33,6 +33,19 @@ def merged_labels(values) -> list[tuple[str, list[str]]]:
     return [(label, sorted(texts)) for label, texts in raw.items() if len(texts) > 1]
 
 
+def case_variants(values) -> list[list[tuple[str, int]]]:
+    """Labels (as :func:`label_text` reads them) that differ only in upper and lower case ('north', 'North'), each
+    with its number of cells: [[(label, cells), ...], ...].  They stay different groups, since only the user knows
+    whether they are one."""
+    from collections import Counter
+
+    counts = Counter(label_text(v) for v in values)
+    by_fold: dict[str, list[tuple[str, int]]] = {}
+    for label, n in counts.items():
+        by_fold.setdefault(label.casefold(), []).append((label, n))
+    return [sorted(found) for _, found in sorted(by_fold.items()) if len(found) > 1]
+
+
 def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "group", unit: str = "group") -> list[str]:
     """Notes on how the labels of ``column`` were read: a column of codes read as their value labels (SPSS, Stata),
     and labels that differed only by spaces at their ends or Unicode form and were read as one: of the group column (every command with groups gives it through

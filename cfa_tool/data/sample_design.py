@@ -319,11 +319,19 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
                          f"estimation")
             rows = rows[~zero]
             if group is not None and group in frame.columns:
-                gone = sorted(set(_labels(before[group]).dropna()) - set(_labels(frame[group]).dropna()))
+                counts = _labels(before[group]).value_counts()
+                left = sorted(set(_labels(frame[group]).dropna()))
+                gone = sorted(set(counts.index) - set(left))
                 if gone:
-                    notes.insert(0, f"every row of group{'s' if len(gone) > 1 else ''} "
-                                    f"{', '.join(repr(g) for g in gone)} of '{group}' has weight 0, so "
-                                    f"{'they are' if len(gone) > 1 else 'it is'} not in the analysis")
+                    said = (f"every row of group{'s' if len(gone) > 1 else ''} "
+                            + ", ".join(f"'{printable(g)}' ({counts[g]} row{'s' if counts[g] != 1 else ''})"
+                                        for g in gone)
+                            + f" of '{printable(group)}' has weight 0 in '{printable(columns.weights)}'")
+                    if len(left) < 2:  # the multi-group analysis cannot run: the weights, not the labels, are why
+                        raise DataError(f"{source}: {said}, so only {len(left)} group is left "
+                                        f"({', '.join(repr(printable(g)) for g in left)}); a multi-group analysis "
+                                        f"needs at least two")
+                    notes.insert(0, f"{said}, so {'they are' if len(gone) > 1 else 'it is'} not in the analysis")
     for what, name in (("cluster", columns.cluster), ("stratum", columns.strata)):
         if name is not None:
             absent = frame[name].isna().to_numpy()

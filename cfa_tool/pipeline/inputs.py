@@ -331,7 +331,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     with odd_values_named(loaded):
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                        ordinal_estimator, design), ids_by_row_number(ids, frame))
-    result = with_missing_reading(with_odd_values(result, loaded), loaded, missing_codes)
+    result = with_missing_reading(with_odd_values(result, loaded, group), loaded, missing_codes)
     if spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         result = with_same_answer_rows(result, _labelled(frame, group), spec, ids_by_row_number(ids, frame))
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
@@ -368,17 +368,42 @@ def _id_can_apply(spec: Spec, ordinal, fit_options: FitOptions) -> None:
                       f"to name each scored row)")
 
 
-def odd_value_problems(loaded: LoadedData) -> tuple:
+def odd_value_problems(loaded: LoadedData, group: str | None = None) -> tuple:
     """Values in the item columns that look like no answers (a missing-value code, a totals row), and those the
     file marks as no answer and that were read as missing (data.non_answers), as cautions that come first in
-    every view (assessment.admissibility.Problem)."""
+    every view (assessment.admissibility.Problem); with a ``group`` column, its labels that differ only in case
+    (:func:`group_case_problems`) first."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    if group is not None:
+        return group_case_problems(loaded.frame, group) + odd_value_problems(loaded)
 
     marked = non_answer_caution(loaded.non_answers, loaded.source,
                                 loaded.items.names if loaded.items is not None else None)
     return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
         Problem(ProblemKind.VALUES_NOT_ANSWERS, (), None, odd.caution(loaded.source), odd.advice())
         for odd in loaded.cautions + loaded.odd_values)
+
+
+def group_case_problems(frame: pd.DataFrame, group: str) -> tuple:
+    """A caution naming the labels of the group column that differ only in upper and lower case ('north' and
+    'North'), with the rows of each: they are analysed as different groups, and only the user knows whether they
+    are one (they are not merged silently, as labels differing by spaces at their ends are)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.labels import case_variants
+
+    if group not in frame.columns:
+        return ()
+    found = case_variants(frame[group].dropna())
+    if not found:
+        return ()
+    listed = "; ".join(" and ".join(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in variants)
+                       for variants in found)
+    return (Problem(ProblemKind.GROUP_LABELS_BY_CASE, (), float(len(found)),
+                    f"In the group column '{printable(group)}', labels that differ only in upper and lower case are "
+                    f"analysed as different groups: {listed}.",
+                    "if they are one group, recode the column so that they are written alike; if they are different "
+                    "groups, give them labels that differ in more than case."),)
 
 
 def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answers: tuple = (),
@@ -391,11 +416,11 @@ def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answe
                       non_answers=tuple(f for f in non_answers if f.column in set(names)), cautions=cautions)
 
 
-def with_odd_values(result, loaded: LoadedData):
+def with_odd_values(result, loaded: LoadedData, group: str | None = None):
     """``result`` (anything with ``problems``) with the cautions about its data before its own: those of
-    :func:`odd_value_problems` and of :func:`few_answers_problems`; the fit is not refused, since the user may know
-    better."""
-    found = tuple(p for p in odd_value_problems(loaded) + few_answers_problems(result)
+    :func:`odd_value_problems` (with the ``group`` column's) and of :func:`few_answers_problems`; the fit is not
+    refused, since the user may know better."""
+    found = tuple(p for p in odd_value_problems(loaded, group) + few_answers_problems(result)
                   if p not in result.problems)  # said once (scores of the fitted file, say)
     return replace(result, problems=found + tuple(result.problems)) if found else result
 
@@ -522,9 +547,11 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
     """The fit of rows of raw data (after reading, filters and model checks), its data summary naming the
     row filters and the rows the file held before them."""
     result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
-    if group is not None and result.data.rows_read != len(loaded.frame):  # rows without a group label count as read
+    # rows without a group label, and rows of weight 0 (said in a note), count as read
+    if (group is not None or design is not None) and result.data.rows_read != len(loaded.frame):
         result = replace(result, data=replace(result.data, rows_read=len(loaded.frame),
-                                              rows_dropped=len(loaded.frame) - result.data.n_obs,
+                                              rows_dropped=result.data.rows_dropped
+                                              + len(loaded.frame) - result.data.rows_read,
                                               without_group=len(loaded.frame) - result.data.rows_read))
     if not loaded.row_filters:
         return result
@@ -553,6 +580,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                                   missing_data=summary if gaps else None, labels=_file_labels(loaded, spec)),
                           spec, labels, ordinal_items)
     values = loaded.items.of(frame, spec.observed_names) if loaded.items is not None else None
+    if design is not None:  # a chosen information is refused for the design before the missing rows' reason
+        design_test(fit_options, design)
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values)
     notes = missing_notes + notes
     notes += few_category_notes(frame, spec.observed_names, values)
@@ -962,10 +991,11 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
-                       odd_value_problems(loaded) + (() if ordinal_items else  # (thresholds: counted by the fit)
+                       odd_value_problems(loaded, group) + (() if ordinal_items else  # (thresholds: counted by the fit)
                                                      small_group_problems(table, [m.n_obs for _, m in groups])),
                        len(frame) - len(answered), odd_complete,
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,
                        group_rows=tuple(m.n_obs for _, m in groups) if labels else (),
-                       group_parameters=tuple(group_parameter_counts(table)) if labels and not ordinal_items else ())
+                       group_parameters=tuple(group_parameter_counts(table)) if labels and not ordinal_items else (),
+                       zero_weight=len(loaded.frame) - len(frame))
 

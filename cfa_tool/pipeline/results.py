@@ -105,6 +105,8 @@ class CheckResult(Presentable):
     #: model
     group_rows: tuple[int, ...] = ()
     group_parameters: tuple[int, ...] = ()
+    #: rows of weight 0 under sampling or frequency weights: read, and left out before every count above
+    zero_weight: int = 0
 
     @property
     def admissible(self) -> bool:
@@ -127,8 +129,10 @@ class CheckResult(Presentable):
                          f"it holds no rows of answers, so there are no row counts or coverage.")
             lines.extend(f"Note: {note}." for note in self.notes)
             return "\n".join(lines)
-        kept = self.rows + self.without_group
+        kept = self.rows + self.without_group + self.zero_weight
         read = f"{kept} read" if self.rows_in_file is None else f"{self.rows_in_file} read, {kept} kept by the row filter"
+        if self.zero_weight:
+            read += f", {self.zero_weight} of weight 0 (left out)"
         read = (f"{read}, {self.without_group} without a group label (left out), {self.rows} with one:"
                 if self.without_group else f"{read},")
         odd = (f" (and {self.complete_by_odd_values} complete only if the values that look like no answers, named "
@@ -167,7 +171,8 @@ class CheckResult(Presentable):
                 "group_free_parameters": (dict(zip(self.groups, self.group_parameters))
                                           if self.groups and self.group_parameters else None),
                 "design": self.design.to_dict() if self.design is not None else None, "caution": self.caution,
-                "rows_without_group": self.without_group, "rows_in_file": self.rows_in_file,
+                "rows_without_group": self.without_group, "rows_of_weight_zero": self.zero_weight,
+                "rows_in_file": self.rows_in_file,
                 "problems": [p.to_dict() for p in self.problems],
                 "rows_counted_by_frequency_weights": None if self.counted is None else dict(zip(
                     ("read", "complete", "with_gaps", "without_answers"), self.counted)),
@@ -503,6 +508,11 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
 
         problems = tuple(problems) + tuple(weak_factor_problems(estimates, latent, observed, groups, spec.method_factors,
                                                                 spec.exploratory_factors)) + tuple(keying_problems(groups))
+    if len(groups) <= 1:  # one group: rows fewer than the parameters (groups of several: each group's own caution)
+        from cfa_tool.assessment.admissibility import small_sample_problems
+
+        small, notes = small_sample_problems(n_obs, fit.n_free_parameters if fit is not None else len(parameter_labels))
+        problems, warnings = small + tuple(problems), tuple(warnings) + notes
     return FitResult(
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
         estimator=method.sentence(len(groups)), method=method, converged=converged, iterations=iterations,

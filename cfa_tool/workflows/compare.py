@@ -172,7 +172,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             found = _compare_ordinal(specs, names, complete, source, group, reference_group,
                                      replace(fit_options, missing=None if pairwise else MissingData.LISTWISE),
                                      ordinal_items, ordinal_estimator, dropped, design, pairwise, notes,
-                                     odd_value_problems(loaded))
+                                     odd_value_problems(loaded, group))
             return replace(found, results=tuple(with_missing_reading(r, loaded, missing_codes) for r in found.results),
                            without_group=without_group)
         results = []
@@ -188,7 +188,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                            if design is not None else result)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
         return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
-                          fit_options.missing, tuple(notes), odd_value_problems(loaded), without_group=without_group)
+                          fit_options.missing, tuple(notes), odd_value_problems(loaded, group), without_group=without_group)
 
 
 def _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items, method,

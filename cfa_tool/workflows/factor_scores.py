@@ -444,7 +444,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes.insert(0, f"{'The value' if one else 'The values'} {', '.join(f'{c:g}' for c in carried)} in {source} "
                         f"{'was' if one else 'were'} read as no answer, as the earlier fit read {'it' if one else 'them'} "
                         f"(its missing-value codes)")
-    result = api.with_odd_values(result, api.analysed_odd_values(loaded, spec, group))
+    result = api.with_odd_values(result, api.analysed_odd_values(loaded, spec, group), group)
     from cfa_tool.scoring.model import OrdinalScoringModel
 
     ordinal = isinstance(models[0], OrdinalScoringModel)

@@ -252,7 +252,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     spec, loaded, read_notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
     # values that look like no answers, among the rows with a group label: first among the cautions
-    data_cautions = tuple(p.line() for p in odd_value_problems(analysed_odd_values(loaded, spec, group)))
+    data_cautions = tuple(p.line() for p in odd_value_problems(analysed_odd_values(loaded, spec, group), group))
     if spec.invariant:
         where = spec.equalities_location
         raise ModelError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "

@@ -42,7 +42,7 @@ from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, row_numbers, sample_moments
 from cfa_tool import options as check
-from cfa_tool.errors import DataError, EstimationError, OptionError, estimation_of
+from cfa_tool.errors import DataError, EstimationError, OptionError, estimation_of, printable
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.pipeline.continuous import fit_moments
 from cfa_tool.language.spec import Spec
@@ -204,6 +204,25 @@ def _ordinal_setup(spec: Spec, ordinal, ordinal_estimator, options: dict) -> tup
     return items, method if items else None, pairwise
 
 
+def _same_categories(calibration, validation, frame: pd.DataFrame) -> None:
+    """An error when an ordinal item of the validation sample has an answer category the calibration sample never
+    had: the two samples' answer scales differ, so the calibration's thresholds and the tight check cannot carry
+    over (as scores of other data refuse such an answer, workflows.factor_scores._check_categories)."""
+    for name, seen, cats in zip(validation.names, calibration.categories, validation.categories):
+        new = [c for c in cats if c not in set(seen)]
+        if not seen or not new:
+            continue
+        column = pd.to_numeric(frame[name], errors="coerce").to_numpy(dtype=float)
+        where = np.isin(column, new)
+        first = int(row_numbers(frame)[np.argmax(where)])
+        raise DataError(f"{validation.source}: ordinal item '{printable(name)}' has the answer"
+                        f"{'s' if len(new) > 1 else ''} {', '.join(f'{c:g}' for c in new)} ({int(where.sum())} rows, the "
+                        f"first in data row {first}), which the calibration sample {calibration.source} never had (its "
+                        f"categories: {', '.join(f'{c:g}' for c in seen)}); the two samples' answer scales differ, so "
+                        f"the calibration estimates cannot be carried over: recode the answers alike in both files or "
+                        f"leave those rows out")
+
+
 def _same_file(first, second) -> bool:
     import os
 
@@ -267,9 +286,10 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     screens = [screened(loaded.frame, spec.observed_names, loaded.source, loaded.non_answers, loaded.cautions) for loaded in read]
     with odd_values_named(next((s for s in screens if s.odd_values), screens[0])):
         if ordinal_items:
-            result = replicate_ordinal(spec, _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise),
-                                       _ordinal_moments(spec, val_frame, val_source, ordinal_items, pairwise), method,
-                                       **options)
+            cal_moments = _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise)
+            val_moments = _ordinal_moments(spec, val_frame, val_source, ordinal_items, pairwise)
+            _same_categories(cal_moments, val_moments, val_frame)
+            result = replicate_ordinal(spec, cal_moments, val_moments, method, **options)
         else:
             result = replicate_moments(spec, _moments(spec, cal_frame, cal_source, missing),
                                        _moments(spec, val_frame, val_source, missing), **options)

@@ -119,3 +119,25 @@ def test_numbers_written_in_different_ways_are_one_group_and_every_command_says_
     kept = cfa_tool.fit(MODEL, spelled_file, group="area", keep=["area != 1"])
     assert [g.label for g in kept.groups] == ["2", "3"]
     assert [w for w in kept.warnings if "'2' and '2.0' as '2'" in w] and not [w for w in kept.warnings if "'01'" in w]
+
+
+def test_labels_that_differ_only_in_case_are_named_first_and_kept_apart(spaced):
+    # a hostile trial: 'north' and 'North' became two groups with no word, while 'south ' was merged with a note
+    from cfa_tool.assessment.admissibility import ProblemKind
+    from cfa_tool.data.labels import case_variants
+    from cfa_tool.workflows.invariance import invariance
+
+    cased = spaced.assign(area=spaced["area"].str.strip())
+    cased.loc[cased.index[:40], "area"] = "North"  # 40 of north's 150 rows; counted by hand: 110 'north' remain
+    assert case_variants(cased["area"]) == [[("North", 40), ("north", 110)]]
+    assert case_variants(spaced["area"]) == []  # spaces at the ends are not case
+    said = ("labels that differ only in upper and lower case are analysed as different groups: 'North' (40 rows) and "
+            "'north' (110 rows)")
+    fitted = cfa_tool.fit(MODEL, cased, group="area")
+    assert [g.label for g in fitted.groups] == ["North", "north", "south", "west"]  # not merged: the user decides
+    first = fitted.problems[0]
+    assert first.kind is ProblemKind.GROUP_LABELS_BY_CASE and said in first.explanation
+    assert not first.kind.inadmissible
+    assert any(p.kind is ProblemKind.GROUP_LABELS_BY_CASE for p in cfa_tool.check(MODEL, cased, group="area").problems)
+    assert said in invariance(MODEL, cased, "area").warnings[0]
+    assert not any(p.kind is ProblemKind.GROUP_LABELS_BY_CASE for p in cfa_tool.fit(MODEL, spaced, group="area").problems)

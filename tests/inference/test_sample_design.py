@@ -460,7 +460,43 @@ def test_rows_and_groups_of_weight_zero_are_said_in_every_command(hs_data):
     result = invariance(THREE_FACTORS, third, "grp", weights="w")
     assert result.groups == ("a", "b")
     # said among the notes on the data, as fit says it (not in the problem box of the solution)
-    assert any("very row of group 'c' of 'grp' has weight 0" in line for line in report_of(result).warnings)
+    assert any(f"very row of group 'c' ({int((k % 3 == 0).sum())} rows) of 'grp' has weight 0 in 'w'" in line
+               for line in report_of(result).warnings)
+
+
+def test_zero_weights_that_leave_one_group_are_named_in_the_error(hs_data):
+    # a hostile trial: 'the group column has only 1 group' without a word that the weights removed the other
+    from cfa_tool.errors import DataError
+
+    data = hs_data.assign(w=np.where(hs_data.school == "Pasteur", 0.0, 1.0))
+    pasteur = int((hs_data.school == "Pasteur").sum())  # 156 rows (Holzinger & Swineford 1939)
+    with pytest.raises(DataError, match=rf"every row of group 'Pasteur' \({pasteur} rows\) of 'school' has weight 0 in "
+                                        rf"'w', so only 1 group is left \('Grant-White'\)"):
+        cfa_tool.fit(THREE_FACTORS, data, group="school", weights="w")
+
+
+@pytest.mark.parametrize("group", [None, "school"])
+def test_rows_of_weight_zero_are_rows_read_not_analysed(hs_data, group):
+    # a hostile trial: '423 rows analysed of 423 read' for a file of 471 rows, 48 of weight 0
+    data = hs_data.reset_index(drop=True).assign(w=1.0)
+    data.loc[data.index[::10], "w"] = 0.0
+    zero = len(data.index[::10])
+    result = cfa_tool.fit(THREE_FACTORS, data, weights="w", group=group)
+    assert result.data.rows_read == len(data) and result.data.n_obs == len(data) - zero
+    assert result.data.rows_dropped == zero
+    assert any(f"{zero} rows have weight 0 in 'w' and were left out" in n for n in result.warnings)
+    checked = cfa_tool.check(THREE_FACTORS, data, weights="w", group=group)
+    assert checked.zero_weight == zero and f"Rows: {len(data)} read, {zero} of weight 0 (left out)," in checked.summary()
+
+
+def test_a_chosen_information_under_a_cluster_design_is_refused_for_the_design(hs_data):
+    # a hostile trial: with answers missing, the refusal spoke of full-information ML, not of the sandwich errors
+    from cfa_tool.errors import OptionError
+
+    data = hs_data.reset_index(drop=True).assign(unit=np.arange(len(hs_data)) % 40)
+    data.loc[3, "x1"] = np.nan
+    with pytest.raises(OptionError, match="clusters or strata the standard errors are sandwich ones"):
+        cfa_tool.fit(THREE_FACTORS, data, cluster="unit", information="expected")
 
 
 def test_very_uneven_weights_bring_a_caution_first(hs_data):

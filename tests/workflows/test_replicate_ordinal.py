@@ -92,3 +92,16 @@ def test_command_line_replicate_with_ordinal_items(tmp_path):
     first = json.loads(out.read_text())["replications"][0]
     assert first["tight"]["test"] == "scale-shifted"
     assert first["calibration"]["robust"]["chi_square_scaled"] > 0
+
+
+def test_a_validation_category_the_calibration_never_had_is_an_error_naming_it():
+    # a hostile trial: the tight check ran and nothing said that the two samples' answer scales differ
+    from cfa_tool.errors import DataError
+
+    calibration, validation = _draw(600, 2), _draw(500, 3)
+    validation.loc[[4, 9], "q2"] = 6  # data rows 5 and 10; the draws have categories 1 to 5 (four cuts)
+    with pytest.raises(DataError, match=r"^<data frame>: ordinal item 'q2' has the answer 6 \(2 rows, the first in data row 5\), "
+                                        r"which the calibration sample <data frame> never had \(its categories: 1, 2, 3, 4, 5\)"):
+        replicate(MODEL, calibration, validation)
+    # a category the validation sample lacks is no new scale: the replication runs
+    assert replicate(MODEL, calibration, validation.assign(q2=validation.q2.clip(upper=4))).tight_df == 15

@@ -1,0 +1,49 @@
+"""A fit of one group with fewer rows than its model's free parameters: a caution first; below a common rule of
+thumb of 5 rows per parameter (Bentler & Chou 1987, recalled from memory): a note.  The count of free parameters is
+by hand for the three-factor model of Holzinger & Swineford (1939) on complete rows: 6 free loadings, 9 residual
+variances, 3 factor variances and 3 factor covariances = 21 (no mean structure with complete rows)."""
+
+from __future__ import annotations
+
+import pytest
+
+import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind, small_sample_problems
+from tests.conftest import THREE_FACTORS
+
+ITEMS = [f"x{i}" for i in range(1, 10)]
+
+
+def test_the_rule_by_hand():
+    assert small_sample_problems(20, 21)[0][0].kind is ProblemKind.SMALL_SAMPLE
+    assert small_sample_problems(21, 21)[0] == () and small_sample_problems(21, 21)[1]  # a note only
+    assert small_sample_problems(104, 21)[0] == () and small_sample_problems(104, 21)[1]
+    assert small_sample_problems(105, 21) == ((), ())  # 5 x 21 = 105
+
+
+def test_fewer_rows_than_parameters_bring_a_caution_first(hs_data):
+    result = cfa_tool.fit(THREE_FACTORS, hs_data[ITEMS].iloc[140:160])  # 20 rows whose fit converges, admissible
+    assert result.fit.n_free_parameters == 21 and result.admissible
+    first = result.problems[0]
+    assert first.kind is ProblemKind.SMALL_SAMPLE and not first.kind.inadmissible and first.value == 20.0
+    assert first.explanation.startswith("20 rows for the 21 free parameters of the model") and "rule of thumb" in first.explanation
+
+
+@pytest.mark.parametrize("rows, noted", [(60, True), (301, False)])
+def test_fewer_than_five_rows_per_parameter_bring_a_note(hs_data, rows, noted):
+    result = cfa_tool.fit(THREE_FACTORS, hs_data[ITEMS].iloc[:rows])
+    assert not any(p.kind is ProblemKind.SMALL_SAMPLE for p in result.problems)
+    said = [w for w in result.warnings if "free parameters of the model, fewer than 5 per parameter" in w]
+    assert bool(said) is noted
+    if noted:
+        assert said[0].startswith("60 rows for the 21 free parameters") and "rule of thumb" in said[0]
+
+
+def test_workflows_that_fit_say_it_too(hs_data):
+    from cfa_tool.workflows.compare import compare
+
+    compared = compare(["factor f: x1..x9\n", THREE_FACTORS], hs_data[ITEMS].iloc[140:160])
+    one, three = compared.results  # 18 and 21 free parameters for 20 rows: a note, and a caution first
+    assert not any(p.kind is ProblemKind.SMALL_SAMPLE for p in one.problems)
+    assert any(w.startswith("20 rows for the 18 free parameters") for w in one.warnings)
+    assert three.problems[0].kind is ProblemKind.SMALL_SAMPLE
