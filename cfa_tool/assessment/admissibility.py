@@ -84,6 +84,9 @@ DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.SMALL_EFFECTI
 #: rows per free parameter a common rule of thumb asks for (Bentler & Chou 1987, recalled from memory: at least 5,
 #: better 10); a note below it, not a cutoff of its own
 ROWS_PER_PARAMETER = 5
+#: the rule in words, in the cautions of a small sample and of a small group alike
+ROWS_RULE = (f"a common rule of thumb, recalled from Bentler & Chou 1987, asks for at least {ROWS_PER_PARAMETER} rows "
+             f"per parameter; a convention, not a law")
 
 
 def small_sample_problems(rows: float, free: int) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
@@ -92,8 +95,7 @@ def small_sample_problems(rows: float, free: int) -> tuple[tuple["Problem", ...]
     parameter (a rule of thumb; Bentler & Chou 1987, recalled from memory).  Returns (problems, notes)."""
     if free <= 0 or rows >= ROWS_PER_PARAMETER * free:
         return (), ()
-    thumb = (f"a common rule of thumb, recalled from Bentler & Chou 1987, asks for at least {ROWS_PER_PARAMETER} rows "
-             f"per parameter; a convention, not a law")
+    thumb = ROWS_RULE
     if rows >= free:
         return (), (f"{rows:g} rows for the {free} free parameters of the model, fewer than {ROWS_PER_PARAMETER} per "
                     f"parameter ({thumb}): estimates and fit indices of a sample this small vary much from sample to "
@@ -209,11 +211,6 @@ def _names(label: str) -> tuple[str, ...]:
     return split_label(label)[1]
 
 
-#: rows per free parameter a common rule of thumb asks for (Bentler & Chou 1987, recalled from memory: at least 5,
-#: better 10); stated in the small-group caution, not a cutoff of its own
-ROWS_PER_PARAMETER = 5
-
-
 def group_parameter_counts(table: ParameterTable) -> list[int]:
     """The free parameters of each group's model: the distinct elements of theta its entries depend on (a
     parameter held equal across groups counts in each group it appears in)."""
@@ -236,9 +233,7 @@ def small_group_problems(table: ParameterTable, rows: list[float]) -> tuple[Prob
             out.append(Problem(
                 ProblemKind.SMALL_GROUP, (), float(n),
                 f"{n:g} rows for the {q} free parameters of this group's model: its estimates, and every "
-                f"comparison with the other groups, rest on too few answers (fewer rows than parameters; a common rule "
-                f"of thumb, recalled from Bentler & Chou 1987, asks for at least {ROWS_PER_PARAMETER} rows per "
-                f"parameter).",
+                f"comparison with the other groups, rest on too few answers (fewer rows than parameters; {ROWS_RULE}).",
                 "gather more rows for this group, join it with a similar group by recoding the group column, or leave "
                 "it out with a row filter (--keep).", label))
     return tuple(out)
