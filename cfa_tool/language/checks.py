@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import Location, ModelError
-from cfa_tool.language.spec import ParameterRef, Spec
+from cfa_tool.language.spec import ParameterRef, Spec, answer_key
 
 
 def _fail(spec: Spec, message: str, location: Location | None) -> ModelError:
@@ -57,6 +57,7 @@ def check_spec(spec: Spec) -> None:
     _check_ordinal(spec)
     _check_method(spec)
     _check_reversed(spec)
+    _check_answers(spec)
     _check_pairs(spec)
     _check_references(spec)
     _check_contradictions(spec)
@@ -196,6 +197,40 @@ def _check_reversed(spec: Spec) -> None:
                 raise _fail(spec, f"'{name}' is declared reversed twice (first on line {seen[name.text].line}); "
                                   f"declare each item once", name.location)
             seen[name.text] = name.location
+
+
+def _check_answers(spec: Spec) -> None:
+    """'answers' statements: each word listed once (matching ignores case and surrounding spaces), each item
+    covered by one statement, at most one statement for every item (without 'for')."""
+    observed = set(spec.observed_names)
+    covered: dict[str, Location] = {}
+    general: Location | None = None
+    for coding in spec.answers:
+        words: dict[object, str] = {}
+        for answer in coding.answers:
+            key = answer_key(answer.word) if answer.word is not None else answer.number
+            if key in words:
+                raise _fail(spec, f"the answer '{answer.shown}' is listed twice in this statement (as "
+                                  f"'{words[key]}' too; case and surrounding spaces do not count); list each answer "
+                                  f"once", answer.location)
+            words[key] = answer.shown
+        if not any(a.word is not None for a in coding.answers):
+            raise _fail(spec, "an 'answers' statement lists words the cells hold, such as 'answers \"Disagree\" = 1, "
+                              "\"Agree\" = 2'; this one lists numbers only", coding.location)
+        if not coding.items:
+            if general is not None:
+                raise _fail(spec, f"a second 'answers' statement for every item (the first is on line {general.line}); "
+                                  f"name the items of the others with 'for ITEMS'", coding.location)
+            general = coding.location
+        for name in coding.items:
+            if name.text in spec.factor_names:
+                raise _fail(spec, f"'{name}' is a factor; 'answers' says what the answers to items mean", name.location)
+            if name.text not in observed:
+                raise _unknown_name(spec, name.text, name.location)
+            if name.text in covered:
+                raise _fail(spec, f"the answers of '{name}' are given twice (first on line {covered[name.text].line}); "
+                                  f"give each item's answers once", name.location)
+            covered[name.text] = name.location
 
 
 def _known_names(spec: Spec) -> list[str]:

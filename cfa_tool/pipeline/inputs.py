@@ -11,6 +11,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.answer_words import code_answer_words, coding_record
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.matching import answer_range_notes, check_columns, check_declared_ranges
@@ -161,6 +162,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         frame, filter_notes = apply_filters(frame, filters, loaded.source, loaded.value_labels)
         notes += filter_notes
     check_columns(spec, columns, loaded.source, loaded.sheet_hint())
+    frame, coding_notes = code_answer_words(spec, frame, loaded.source)  # 'answers' statements: words as codes
+    notes += coding_notes
     check_declared_ranges(spec, frame, loaded.source, loaded.value_labels)
     values = item_values(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
     notes += answer_range_notes(spec, frame, loaded.source, loaded.value_labels, values)
@@ -323,6 +326,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     codes = missing_codes_option(missing_codes)
     if codes:  # kept with the fit: scores of other data with it read them so too
         result = replace(result, data=replace(result.data, missing_codes=codes))
+    if spec.answers:  # kept with the fit, as the missing-value codes are
+        result = replace(result, data=replace(result.data, answer_coding=coding_record(spec)))
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 

@@ -177,6 +177,9 @@ class DataSummary:
     # per item, the lowest and highest answer of the rows analysed (empty without rows), so that scoring other data
     # with this fit can name answers outside them (a file coded 0-4 scored with a fit of answers coded 1-5)
     ranges: tuple[tuple[float, float], ...] = ()
+    # the model's coding of answers recorded as words (data.answer_words.coding_record), which scoring other data with
+    # this fit reads so too
+    answer_coding: tuple = ()
 
     @property
     def pair_range(self) -> tuple[int, int] | None:
@@ -217,6 +220,10 @@ class DataSummary:
             out["missing_codes"] = list(self.missing_codes)
         if self.analysed is not None:
             out["matrix_analysed"] = self.analysed.name.lower()
+        if self.answer_coding:
+            from cfa_tool.data.answer_words import coding_json
+
+            out["answer_coding"] = coding_json(self.answer_coding)
         if self.ranges:
             out["answer_ranges"] = {name: list(r) for name, r in zip(self.variables, self.ranges)}
         return clean(out)

@@ -16,6 +16,7 @@ import math
 from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
+from cfa_tool.data.answer_words import coding_described
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
@@ -322,6 +323,18 @@ def _sample_phrase(result) -> str:
     return text
 
 
+def answer_coding_sentence(data) -> str:
+    """How answers recorded as words were coded (the model's 'answers' statements), e.g. 'Answers recorded as words
+    were coded 1 (Strongly disagree) to 5 (Strongly agree).'; empty when the answers were numbers."""
+    record = getattr(data, "answer_coding", ())
+    if not record:
+        return ""
+    if len(record) == 1:
+        return f"Answers recorded as words were coded {coding_described(record[0][1])}."
+    each = "; ".join(f"{coding_described(answers)} for {_list(list(items))}" for items, answers in record)
+    return f"Answers recorded as words were coded {each}."
+
+
 def _matrix_sentence(result, subject: str = "The model was") -> str:
     """For a fit of summary statistics: which matrix was analysed instead of rows of answers ('' for rows), and,
     for correlations without standard deviations, what that means for the estimates (Cudeck 1989)."""
@@ -405,6 +418,9 @@ def methods_paragraph(result) -> str:
     matrix = _matrix_sentence(result)
     if matrix:  # right after the sentence naming the estimation and N
         parts.insert(1, matrix)
+    coding = answer_coding_sentence(result.data)
+    if coding:
+        parts.insert(1, coding)
     parts += _design_sentences([result])
     inadmissible = not result.admissible
     if inadmissible:

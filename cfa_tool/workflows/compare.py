@@ -13,6 +13,7 @@ from cfa_tool.pipeline.inputs import (_described, choose_missing_handling, desig
                                       odd_value_problems, odd_values_named,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_row_options, summary_source, with_design)
+from cfa_tool.data.answer_words import code_answer_words, refuse_different_codings
 from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import row_numbers
@@ -130,10 +131,14 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
         return _compare_summary(specs, names, data, fit_options, group)
+    refuse_different_codings(specs, names)
     _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
     for spec in specs[1:]:
         check_columns(spec, list(frame.columns), source, loaded.sheet_hint())
+        coded = set(specs[0].observed_names)  # items of the later models only: their answer words as codes
+        frame, coding_notes = code_answer_words(spec, frame, source, tuple(x for x in spec.observed_names if x not in coded))
+        notes = list(notes) + coding_notes
     used = sorted({x for spec in specs for x in spec.observed_names})
     if group is not None and group in frame.columns:
         frame = frame.loc[frame[group].notna()]
