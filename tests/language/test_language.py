@@ -192,22 +192,7 @@ def _error(text: str) -> ModelError:
         ("factor f: a, b, c\nreversed b 1 to 5\n", 2, 12, "expected ',', '..' or 'on'"),
         ("factor f: a, b, c\nreversed b on 1\n", 2, 16, "expected 'to'"),
         ("factor f: a, b, c\nreverse b on 1 to 5\n", 2, 1, "unknown statement 'reverse'; did you mean 'reversed'?"),
-        # answers recorded as words ('answers' statements)
-        ('factor f: a, b, c\nanswers "Agree" = 2, " agree" = 3\n', 2, 22,
-         "the answer ' agree' is listed twice in this statement (as 'Agree' too; case and surrounding spaces"),
-        ('factor f: a, b, c\nanswers "No" = 0, 9 = 1, 9 = 2\n', 2, 26, "the answer '9' is listed twice"),
-        ('factor f: a, b, c\nanswers 1 = 1, 2 = 2\n', 2, 1, "lists numbers only"),
-        ('factor f: a, b, c\nanswers " " = 1\n', 2, 9, "an answer word is empty"),
-        ('factor f: a, b, c\nanswers "No" = 1e9\n', 2, 16, "the code 1e+09 is not a rating scale's answer"),
-        ('factor f: a, b, c\nanswers "No" = 0\nanswers "Yes" = 1\n', 3, 1,
-         "a second 'answers' statement for every item (the first is on line 2)"),
-        ('factor f: a, b, c\nanswers "No" = 0 for f\n', 2, 22, "'f' is a factor; 'answers' says what the answers"),
-        ('factor f: a, b, c\nanswers "No" = 0 for z\n', 2, 22, "'z' is not a factor or an indicator"),
-        ('factor f: a, b, c\nanswers "No" = 0 for b\nanswers "Yes" = 1 for c, b\n', 3, 26,
-         "the answers of 'b' are given twice (first on line 2)"),
-        ('factor f: a, b, c\nanswers "No" 0\n', 2, 14, "expected '='"),
-        ('factor f: a, b, c\nanswers "No" = "zero"\n', 2, 16, "expected a number"),
-        ("factor f: a, b, c\nanswer 'No' = 0\n", 2, 1, "did you mean 'answers'?"),
+        ("factor f: a, b, c\nanswer 'No' = 0\n", 2, 1, "did you mean 'answers'?"),  # of answers recorded as words
     ],
 )
 def test_error_messages(text, line, column, words):
@@ -258,3 +243,29 @@ def test_comment_and_blank_lines_inside_a_list_continued_after_a_comma():
     with pytest.raises(ModelError) as caught:  # a place after such lines is still reported at its own line
         parse_model("factor a: x1, x2,\n# note\n\n  x3\nfactor b x4\n", source="m.cfa")
     assert str(caught.value).startswith("m.cfa:5:10:")
+
+
+#: each error of an 'answers' statement (answers recorded as words), written below a one-factor model: the statement
+#: lines -> the error's line, column and words
+ANSWERS_ERRORS = {
+    'answers "Agree" = 2, " agree" = 3': (2, 22, "the answer ' agree' is listed twice in this statement "
+                                                   "(as 'Agree' too; case and surrounding spaces"),
+    'answers "No" = 0, 9 = 1, 9 = 2': (2, 26, "the answer '9' is listed twice"),
+    'answers 1 = 1, 2 = 2': (2, 1, 'lists numbers only'),
+    'answers " " = 1': (2, 9, 'an answer word is empty'),
+    'answers "No" = 1e9': (2, 16, "the code 1e+09 is not a rating scale's answer"),
+    'answers "No" = 0\nanswers "Yes" = 1': (3, 1, "a second 'answers' statement for every item "
+                                                      "(the first is on line 2)"),
+    'answers "No" = 0 for f': (2, 22, "'f' is a factor; 'answers' says what the answers"),
+    'answers "No" = 0 for z': (2, 22, "'z' is not a factor or an indicator"),
+    'answers "No" = 0 for b\nanswers "Yes" = 1 for c, b': (3, 26, "the answers of 'b' are "
+                                                                       "given twice (first on line 2)"),
+    'answers "No" 0': (2, 14, "expected '='"),
+    'answers "No" = "zero"': (2, 16, 'expected a number'),
+}
+
+
+@pytest.mark.parametrize("statements", list(ANSWERS_ERRORS))
+def test_answers_statement_errors(statements):
+    line, column, words = ANSWERS_ERRORS[statements]
+    test_error_messages("factor f: a, b, c\n" + statements + "\n", line, column, words)
