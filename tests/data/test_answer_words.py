@@ -190,3 +190,14 @@ def test_the_refusal_of_words_suggests_the_statement_but_never_applies_it(files,
     assert suggested_statement(np.array(["Disagree", "Agree"], dtype=object)) is None  # 4 or 5 points?
     assert suggested_statement(np.array(["often", "Never", "Always", None, 3.5], dtype=object)) == \
         'answers "Never" = 1, "Rarely" = 2, "Sometimes" = 3, "often" = 4, "Always" = 5'
+
+
+def test_replication_and_bootstrap_read_the_words_so_too(files):
+    words = cfa_tool.split_half(MODEL, files / "words.csv", seed=3)
+    numbers = cfa_tool.split_half(PLAIN, files / "numbers.csv", seed=3)
+    for a, b in zip(words, numbers):
+        assert abs(a.calibration_result.fit.chi_square - b.calibration_result.fit.chi_square) < 1e-10
+    w = cfa_tool.bootstrap(MODEL, files / "words.csv", replications=20, seed=2, workers=1)
+    n = cfa_tool.bootstrap(PLAIN, files / "numbers.csv", replications=20, seed=2, workers=1)
+    assert w.to_dict()["result"] == n.to_dict()["result"]  # the same resamples, the same intervals
+    assert any("recorded as words" in note for note in w.fit.warnings)
