@@ -14,7 +14,7 @@ import pandas as pd
 from dataclasses import replace
 
 from cfa_tool.data.moments import row_numbers
-from cfa_tool.errors import DataError, Location, OptionError, printable
+from cfa_tool.errors import DataError, Location, ModelError, OptionError, printable
 from cfa_tool.language.spec import AnswerCoding, AnswerWord, Name, Spec, answer_key
 from cfa_tool.numbers import number as strict_number
 
@@ -216,3 +216,12 @@ def refuse_different_codings(specs, names) -> None:
                                   f"differently (their 'answers' statements differ, or one has none); give the "
                                   f"models the same 'answers' statements")
             seen.setdefault(item, (name, mine))
+
+
+def refuse_for_summary_statistics(spec: Spec, source: str) -> None:
+    """An 'answers' statement cannot apply to summary statistics (no answers to code): an error naming it."""
+    if spec.answers:
+        coding = spec.answers[0]
+        raise ModelError(f"{coding.origin} codes answers recorded as words, and {source} holds summary statistics, not "
+                         f"answers; remove the statement or give the rows of answers", coding.location,
+                         spec.source_line(coding.location))

@@ -561,6 +561,9 @@ def comparison_paragraph(comparison) -> str:
              f"({_comparison_rows(comparison)}){groups}, each estimated by {_estimator_phrase(first)}."]
     if matrix:  # summary statistics: said once, right after what was compared
         parts.append(matrix)
+    coding = answer_coding_sentence(first.data)  # the models read the answers one way (workflows.compare)
+    if coding:
+        parts.append(coding)
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
     parts += _design_sentences(list(results))
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
@@ -718,6 +721,9 @@ def invariance_paragraph(result, levels) -> str:
         departures = _departures(d)
         if departures:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))
+    coding = answer_coding_sentence(first.data)
+    if coding:
+        parts.append(coding)
     parts += _design_sentences([s.result for s in steps])
     methods = sorted({s.versus_previous.method for s in steps[1:] if s.versus_previous is not None
                       and not s.versus_previous.not_computed}, key=_PREFERRED.index)

@@ -13,7 +13,7 @@ from cfa_tool.pipeline.inputs import (_described, choose_missing_handling, desig
                                       odd_value_problems, odd_values_named,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_row_options, summary_source, with_design)
-from cfa_tool.data.answer_words import code_answer_words, refuse_different_codings
+from cfa_tool.data.answer_words import code_answer_words, refuse_different_codings, refuse_for_summary_statistics
 from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import row_numbers
@@ -212,6 +212,7 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
     moments, notes = read_summary_file(path)
     results = []
     for spec, name in zip(specs, names):
+        refuse_for_summary_statistics(spec, moments.source)
         check_columns(spec, list(moments.names), moments.source)
         with estimation_of(f"model {name}"):
             results.append(_described(of_summary_statistics(fit_moments(spec, moments, fit_options), moments, ()),

@@ -201,3 +201,26 @@ def test_replication_and_bootstrap_read_the_words_so_too(files):
     n = cfa_tool.bootstrap(PLAIN, files / "numbers.csv", replications=20, seed=2, workers=1)
     assert w.to_dict()["result"] == n.to_dict()["result"]  # the same resamples, the same intervals
     assert any("recorded as words" in note for note in w.fit.warnings)
+
+
+def test_comparison_and_invariance_paragraphs_say_how_the_words_were_coded(files, tmp_path):
+    from cfa_tool.errors import ModelError
+    from cfa_tool.reporting.paragraph import comparison_paragraph
+
+    single = "factor rider: seat, clean, quiet, driver, info, punctual\n"
+    sentence = "Answers recorded as words were coded 1 (Strongly disagree) to 5 (Strongly agree)."
+    compared = cfa_tool.compare([MODEL, single + STATEMENT], files / "words.csv")
+    assert sentence in comparison_paragraph(compared)
+    assert compared.results[1].to_dict()["data"]["answer_coding"][0]["items"] == list(ITEMS)
+    ladder = cfa_tool.invariance(MODEL, files / "words.csv", group="line")
+    assert all(s.result.data.answer_coding for s in ladder.steps)
+    # summary statistics hold no answers to code: the statement cannot apply
+    stats = tmp_path / "cov.stats"
+    numbers = _answers().dropna()[list(ITEMS)]
+    cov = numbers.cov().to_numpy()
+    lines = ["covariance," + ",".join(ITEMS)] + [f"{x}," + ",".join(f"{v:.6f}" for v in cov[i, :i + 1])
+                                                 for i, x in enumerate(ITEMS)]
+    stats.write_text("\n".join(lines) + f"\nn,{len(numbers)}\n")
+    assert cfa_tool.fit(PLAIN, stats).converged  # the file is read without the statement
+    with pytest.raises(ModelError, match="holds summary statistics, not answers; remove the statement"):
+        cfa_tool.fit(MODEL, stats)
