@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.answer_scales import suggested_statement
 from cfa_tool.errors import DataError, EstimationError, printable
 from cfa_tool.method import MissingData
 from cfa_tool.numbers import number as strict_number
@@ -165,11 +166,19 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
                 raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
             shown = printable(text if len(text) <= 40 else text[:37] + "...")
             raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "
-                            f"data row {numbers[row]}); indicators must be numbers: {_recoding(text)}")
+                            f"data row {numbers[row]}); indicators must be numbers: {_recoding(text)}"
+                            + _statement_hint(values))
         out[row] = number
     return out
 
 
+
+
+def _statement_hint(values: np.ndarray) -> str:
+    """The 'answers' statement that would code a column of one common scale's words (a suggestion only)."""
+    statement = suggested_statement(values)
+    return "" if statement is None else (f"; or, if these are the answers of one scale in this order, say what each "
+                                         f"word means with a line in the model file: {statement}")
 
 
 #: an answer written as its code and its label: '5 - strongly agree', '2: rarely', '1) never'

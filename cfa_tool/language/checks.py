@@ -11,7 +11,7 @@ from __future__ import annotations
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import Location, ModelError
 from cfa_tool.language.names import written_name
-from cfa_tool.language.spec import ParameterRef, Spec
+from cfa_tool.language.spec import ParameterRef, Spec, answer_key
 
 
 def _fail(spec: Spec, message: str, location: Location | None) -> ModelError:
@@ -58,6 +58,7 @@ def check_spec(spec: Spec) -> None:
     _check_ordinal(spec)
     _check_method(spec)
     _check_reversed(spec)
+    _check_answers(spec)
     _check_pairs(spec)
     _check_references(spec)
     _check_contradictions(spec)
@@ -185,18 +186,51 @@ def _check_method(spec: Spec) -> None:
 
 
 def _check_reversed(spec: Spec) -> None:
-    observed = set(spec.observed_names)
     seen: dict[str, Location] = {}
     for keying in spec.reversed:
-        for name in keying.items:
-            if name.text in spec.factor_names:
-                raise _fail(spec, f"'{name}' is a factor; only items can be reverse-keyed", name.location)
-            if name.text not in observed:
-                raise _unknown_name(spec, name.text, name.location)
-            if name.text in seen:
-                raise _fail(spec, f"'{name}' is declared reversed twice (first on line {seen[name.text].line}); "
-                                  f"declare each item once", name.location)
-            seen[name.text] = name.location
+        _items_once(spec, keying.items, seen, "only items can be reverse-keyed",
+                    "'{name}' is declared reversed twice (first on line {line}); declare each item once")
+
+
+def _items_once(spec: Spec, names, seen: dict[str, Location], of_factor: str, twice: str) -> None:
+    """Items named by a statement that says something of items: each an item of the model (``of_factor`` ends the
+    message about a factor) and named once across such statements (``seen``: the first mention of each; ``twice``
+    the message, with {name} and {line})."""
+    observed = set(spec.observed_names)
+    for name in names:
+        if name.text in spec.factor_names:
+            raise _fail(spec, f"'{name}' is a factor; {of_factor}", name.location)
+        if name.text not in observed:
+            raise _unknown_name(spec, name.text, name.location)
+        if name.text in seen:
+            raise _fail(spec, twice.format(name=name, line=seen[name.text].line), name.location)
+        seen[name.text] = name.location
+
+
+def _check_answers(spec: Spec) -> None:
+    """'answers' statements: each word listed once (matching ignores case and surrounding spaces), each item
+    covered by one statement, at most one statement for every item (without 'for')."""
+    covered: dict[str, Location] = {}
+    general: Location | None = None
+    for coding in spec.answers:
+        words: dict[object, str] = {}
+        for answer in coding.answers:
+            key = answer_key(answer.word) if answer.word is not None else answer.number
+            if key in words:
+                raise _fail(spec, f"the answer '{answer.shown}' is listed twice in this statement (as "
+                                  f"'{words[key]}' too; case and surrounding spaces do not count); list each answer "
+                                  f"once", answer.location)
+            words[key] = answer.shown
+        if not any(a.word is not None for a in coding.answers):
+            raise _fail(spec, "an 'answers' statement lists words the cells hold, such as 'answers \"Disagree\" = 1, "
+                              "\"Agree\" = 2'; this one lists numbers only", coding.location)
+        if not coding.items:
+            if general is not None:
+                raise _fail(spec, f"a second 'answers' statement for every item (the first is on line {general.line}); "
+                                  f"name the items of the others with 'for ITEMS'", coding.location)
+            general = coding.location
+        _items_once(spec, coding.items, covered, "'answers' says what the answers to items mean",
+                    "the answers of '{name}' are given twice (first on line {line}); give each item's answers once")
 
 
 def _known_names(spec: Spec) -> list[str]:

@@ -30,6 +30,8 @@ from cfa_tool.language.spec import (
     BLOCK_ROTATIONS,
     DEFAULT_BLOCK_ROTATION,
     BoundSetting,
+    AnswerCoding,
+    AnswerWord,
     ExploratoryBlock,
     Factor,
     Name,
@@ -43,7 +45,7 @@ from cfa_tool.language.spec import (
 from cfa_tool.language.grammar_tables import model_parser
 
 STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale", "in",
-                   "invariance", "noninvariant", "ordinal", "reversed", "method", "exploratory", "near")
+                   "invariance", "noninvariant", "ordinal", "reversed", "method", "exploratory", "near", "answers")
 
 # Plain words for the grammar's terminals, used in "expected ..." messages.
 _TERMINAL_WORDS = {
@@ -275,6 +277,7 @@ class _Builder:
         equalities_at: Location | None = None  # the first 'invariance' or 'equal across groups' statement
         blocks: list[ExploratoryBlock] = []
         near_zero: list[tuple[Name, tuple[Name, ...], Tree]] = []
+        answers: list[AnswerCoding] = []
         for stmt in tree.children:
             kind = stmt.data
             self.group = None
@@ -357,6 +360,8 @@ class _Builder:
                 blocks.append(self.block(stmt))
             elif kind == "near_zero_stmt":
                 near_zero.append((self.name(stmt.children[0]), self.name_list(stmt.children[1]), stmt))
+            elif kind == "answers_stmt":
+                answers.append(self.answers(stmt))
             elif kind == "reversed_stmt":
                 low, high = self.number(stmt.children[1]), self.number(stmt.children[2])
                 for value, child in ((low, stmt.children[1]), (high, stmt.children[2])):
@@ -406,9 +411,30 @@ class _Builder:
             method=tuple(method_factors),
             invariance_level=level,
             equalities_location=equalities_at,
+            answers=tuple(answers),
             exploratory=tuple(blocks),
             lines=self.lines,
         ), ordinal)
+
+    def answers(self, stmt: Tree) -> AnswerCoding:
+        """An 'answers "Disagree" = 1, ... [for ITEMS]' statement, each word and code as written."""
+        out = []
+        for answer in stmt.children[0].children:
+            key, code_node = answer.children
+            code = self.number(code_node)
+            if not abs(code) <= LARGEST_SCALE_END:
+                raise self.error(f"the code {code:g} is not a rating scale's answer; give each answer a code between "
+                                 f"-{LARGEST_SCALE_END:,.0f} and {LARGEST_SCALE_END:,.0f}", code_node.children[0])
+            if isinstance(key, Token) and key.type == "STRING":
+                word = str(key)[1:-1]
+                if not word.strip():
+                    raise self.error("an answer word is empty; an empty cell is already no answer, so list only the "
+                                     "words the cells hold", key)
+                out.append(AnswerWord(word, None, code, self.loc(key)))
+            else:
+                out.append(AnswerWord(None, self.number(key), code, self.loc(key.children[0])))
+        items = self.name_list(stmt.children[1]) if len(stmt.children) > 1 else ()
+        return AnswerCoding(tuple(out), tuple(items), self.loc(stmt))
 
     def block(self, stmt: Tree) -> ExploratoryBlock:
         """An 'exploratory factors ... from ... [rotated by ...]' statement, its counts checked: the block's items

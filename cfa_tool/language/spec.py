@@ -141,6 +141,58 @@ class ReverseKeying:
     location: Location
 
 
+def answer_key(word: str) -> str:
+    """How an answer word is matched: case and the spaces around it do not count ('  agree ' is 'Agree');
+    the word itself must be whole (no partial matches)."""
+    return word.strip().casefold()
+
+
+@dataclass(frozen=True)
+class AnswerWord:
+    """One ``"Agree" = 4`` of an ``answers`` statement: the word as written (or a number the column may hold,
+    ``word`` None then) and the code it stands for."""
+
+    word: str | None
+    number: float | None  # a number listed as an answer ('99 = 9'); None for a word
+    code: float
+    location: Location
+
+    @property
+    def shown(self) -> str:
+        return self.word if self.word is not None else f"{self.number:g}"
+
+
+@dataclass(frozen=True)
+class AnswerCoding:
+    """``answers "Disagree" = 1, "Agree" = 2 [for ITEMS]``: what each answer recorded as a word means.  ``items``
+    empty: every item no other ``answers ... for`` statement names."""
+
+    answers: tuple[AnswerWord, ...]
+    items: tuple[Name, ...]
+    location: Location
+    # the saved fit whose coding this is, when scores read other data with it (None: a statement of the model file)
+    carried_from: str | None = field(default=None, compare=False)
+
+    @property
+    def origin(self) -> str:
+        """Where the coding was stated, for notes and errors."""
+        if self.carried_from is not None:
+            return f"the coding of answer words saved with the earlier fit {self.carried_from}"
+        return f"the 'answers' statement on line {self.location.line}"
+
+    @property
+    def item_names(self) -> tuple[str, ...]:
+        return tuple(i.text for i in self.items)
+
+    def codes_by_word(self) -> dict[str, float]:
+        """Matching key of each listed word -> its code."""
+        return {answer_key(a.word): a.code for a in self.answers if a.word is not None}
+
+    def codes_by_number(self) -> dict[float, float]:
+        return {a.number: a.code for a in self.answers if a.number is not None}
+
+
+
 #: The rotations an exploratory block may name (gradient-projection criteria; see exploration.rotation).
 BLOCK_ROTATIONS = ("geomin", "target", "quartimin", "varimax")
 DEFAULT_BLOCK_ROTATION = "geomin"
@@ -210,6 +262,7 @@ class Spec:
     invariance_level: str | None = None  # the level an 'invariance' statement names
     # where the first 'invariance' or 'equal across groups' statement is (for messages about it)
     equalities_location: Location | None = field(default=None, compare=False)
+    answers: tuple[AnswerCoding, ...] = ()  # 'answers' statements: what answers recorded as words mean
     exploratory: tuple[ExploratoryBlock, ...] = ()  # their factors are in ``factors`` too, with their identification
     lines: tuple[str, ...] = field(default=(), repr=False, compare=False)
 
@@ -248,6 +301,16 @@ class Spec:
     def reverse_keyed(self) -> dict[str, tuple[float, float]]:
         """Items declared reverse-keyed, with the minimum and maximum of their answer scale."""
         return {item.text: (k.minimum, k.maximum) for k in self.reversed for item in k.items}
+
+    def answer_codings(self) -> dict[str, AnswerCoding]:
+        """Each item an 'answers' statement covers -> that statement (a statement without 'for' covers the items
+        no other statement names)."""
+        named = {item: c for c in self.answers for item in c.item_names}
+        general = [c for c in self.answers if not c.items]
+        out = dict(named)
+        if general:
+            out.update({x: general[0] for x in self.observed_names if x not in named})
+        return {x: out[x] for x in self.observed_names if x in out}
 
     def first_mention(self, name: str) -> Location | None:
         """Where ``name`` first appears as an indicator (for error messages)."""

@@ -11,6 +11,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.matching import answer_range_notes, check_columns, check_declared_ranges
@@ -163,6 +164,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         notes += filter_notes
         cautions = kept_cautions(cautions, frame)
     check_columns(spec, columns, loaded.source, loaded.sheet_hint())
+    frame, coding_notes = code_answer_words(spec, frame, loaded.source)  # 'answers' statements: words as codes
+    notes += coding_notes
     check_declared_ranges(spec, frame, loaded.source, loaded.value_labels)
     values = item_values(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it
     notes += answer_range_notes(spec, frame, loaded.source, loaded.value_labels, values)
@@ -304,6 +307,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
         spec = load_spec(model)
+        refuse_for_summary_statistics(spec, "a covariance matrix" if covariance is not None else f"'{data}'")
         if covariance is not None:
             if data is not None:
                 raise OptionError("give either data or a covariance matrix, not both")
@@ -605,7 +609,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     return replace(result, warnings=tuple(notes) + result.warnings,  # with _described's description: one replace
                    missing_data=summary if summary is not None and (summary["n_patterns"] > 1
                                                                     or not all(summary["coverage"].values())) else None,
-                   labels=_file_labels(loaded, spec),
+                   labels=_file_labels(loaded, spec), data=_with_coding(result.data, spec),
                    description=_description(spec, group_labels, None if group_labels is None else ()))
 
 
@@ -720,7 +724,13 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
 def _described(result: FitResult, spec: Spec, groups: tuple[str, ...] | None, ordinal_items=()) -> FitResult:
     """The result with the description of exactly the model fitted (for the methods paragraph)."""
     items = tuple(sorted(ordinal_items)) if groups is not None else None
-    return replace(result, description=_description(spec, groups, items))
+    return replace(result, description=_description(spec, groups, items), data=_with_coding(result.data, spec))
+
+
+def _with_coding(data, spec: Spec):
+    """A fit's data summary with how the model coded answers recorded as words (its 'answers' statements), kept with
+    the fit as the missing-value codes are: the methods paragraph says it, and scores of other data read so too."""
+    return replace(data, answer_coding=coding_record(spec)) if spec.answers else data
 
 
 @lru_cache(maxsize=16)
@@ -945,6 +955,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         spec = load_spec(model)
+        refuse_for_summary_statistics(spec, f"'{data}'")
         moments, _ = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
         check_counting_rule(spec, build_parameter_table(spec))

@@ -212,6 +212,9 @@ class DataSummary:
     ranges: tuple[tuple[float, float], ...] = ()
     # rows left out for having no value in the group column (counted in rows_dropped, for another reason than gaps)
     without_group: int = 0
+    # the model's coding of answers recorded as words (data.answer_words.coding_record), which scoring other data with
+    # this fit reads so too
+    answer_coding: tuple = ()
 
     @property
     def pair_range(self) -> tuple[int, int] | None:
@@ -254,6 +257,10 @@ class DataSummary:
             out["matrix_analysed"] = self.analysed.name.lower()
         if self.without_group:
             out["rows_without_group"] = self.without_group
+        if self.answer_coding:
+            from cfa_tool.data.answer_words import coding_json
+
+            out["answer_coding"] = coding_json(self.answer_coding)
         if self.ranges:
             out["answer_ranges"] = {name: list(r) for name, r in zip(self.variables, self.ranges)}
         return clean(out)

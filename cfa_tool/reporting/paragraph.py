@@ -20,6 +20,7 @@ from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Inf
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
 from cfa_tool.assessment.reliability import Keying
 from cfa_tool.data.non_answers import non_answer_clause
+from cfa_tool.data.answer_words import coding_described
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
@@ -375,6 +376,16 @@ def _without_group_clause(count: int, read: int, column: str | None) -> str:
     where = f" ({column})" if column else ""
     return (f"; {count} of {read} row{'s' if read != 1 else ''} had no value in the group column{where} and "
             f"{'was' if count == 1 else 'were'} left out")
+def answer_coding_sentence(data) -> str:
+    """How answers recorded as words were coded (the model's 'answers' statements), e.g. 'Answers recorded as words
+    were coded 1 (Strongly disagree) to 5 (Strongly agree).'; empty when the answers were numbers."""
+    record = getattr(data, "answer_coding", ())
+    if not record:
+        return ""
+    if len(record) == 1:
+        return f"Answers recorded as words were coded {coding_described(record[0][1])}."
+    each = "; ".join(f"{coding_described(answers)} for {_list(list(items))}" for items, answers in record)
+    return f"Answers recorded as words were coded {each}."
 
 
 def _matrix_sentence(result, subject: str = "The model was") -> str:
@@ -582,6 +593,9 @@ def methods_paragraph(result) -> str:
     matrix = _matrix_sentence(result)
     if matrix:  # right after the sentence naming the estimation and N
         parts.insert(1, matrix)
+    coding = answer_coding_sentence(result.data)
+    if coding:
+        parts.insert(1, coding)
     parts += _design_sentences([result])
     inadmissible = not result.admissible
     if inadmissible:
@@ -730,6 +744,9 @@ def comparison_paragraph(comparison) -> str:
              f"({_comparison_rows(comparison)}){groups}, each estimated by {_estimator_phrase(first)}."]
     if matrix:  # summary statistics: said once, right after what was compared
         parts.append(matrix)
+    coding = answer_coding_sentence(first.data)  # the models read the answers one way (workflows.compare)
+    if coding:
+        parts.append(coding)
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
     parts += _design_sentences(list(results))
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
@@ -886,6 +903,9 @@ def invariance_paragraph(result, levels) -> str:
         departures = _departures(d)
         if departures:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))
+    coding = answer_coding_sentence(first.data)
+    if coding:
+        parts.append(coding)
     parts += _design_sentences([s.result for s in steps])
     methods = sorted({s.versus_previous.method for s in steps[1:] if s.versus_previous is not None
                       and not s.versus_previous.not_computed}, key=_PREFERRED.index)

@@ -13,6 +13,7 @@ from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missin
                                       odd_value_problems, odd_values_named, with_missing_reading,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_row_options, summary_source, with_design)
+from cfa_tool.data.answer_words import code_answer_words, refuse_different_codings, refuse_for_summary_statistics
 from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import row_numbers
@@ -132,10 +133,14 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
         return _compare_summary(specs, names, data, fit_options, group)
+    refuse_different_codings(specs, names)
     _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
     for spec in specs[1:]:
         check_columns(spec, list(frame.columns), source, loaded.sheet_hint())
+        coded = set(specs[0].observed_names)  # items of the later models only: their answer words as codes
+        frame, coding_notes = code_answer_words(spec, frame, source, tuple(x for x in spec.observed_names if x not in coded))
+        notes = list(notes) + coding_notes
     used = sorted({x for spec in specs for x in spec.observed_names})
     without_group = 0
     if group is not None and group in frame.columns:  # rows without a group value: left out, and said
@@ -217,6 +222,7 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
     moments, notes = read_summary_file(path)
     results = []
     for spec, name in zip(specs, names):
+        refuse_for_summary_statistics(spec, moments.source)
         check_columns(spec, list(moments.names), moments.source)
         with estimation_of(f"model {name}"):
             results.append(_described(of_summary_statistics(fit_moments(spec, moments, fit_options), moments, ()),

@@ -713,12 +713,14 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
                          id_column: str | None = None, sheet: str | None = None, missing_codes=(), keep=()) -> ScoreResult:
     """Scores of the rows of ``data`` with the parameters of a fit saved as JSON (``fit --json``) of ``model``."""
     from cfa_tool.assessment.admissibility import refuse_inadmissible_saved_fit
+    from cfa_tool.data.answer_words import coding_from_json, with_saved_coding
     from cfa_tool.pipeline import inputs as api
 
     saved = read_saved_fit(saved_path)
     refuse_unknown_scale(saved.data, f"the fit in '{printable(str(saved_path))}'")
     refuse_inadmissible_saved_fit(saved.payload, saved.problems, saved.source, "no factor scores are computed with it")
-    spec = api.load_spec(model)
+    spec = with_saved_coding(api.load_spec(model), coding_from_json(saved.payload["data"].get("answer_coding"),
+                                                                    saved.source), saved.source)
     chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")), standard_errors)
     models, labels = models_of_saved_fit(spec, saved)
     return _score_other_data(saved, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,

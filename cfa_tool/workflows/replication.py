@@ -39,6 +39,7 @@ from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (load_data, load_spec, make_options, odd_value_problems, odd_values_named,
                                       refit_missing_handling, screened)
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
+from cfa_tool.data.answer_words import code_answer_words
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, row_numbers, sample_moments
 from cfa_tool import options as check
@@ -279,9 +280,10 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           "new data (or give one file as --data to split it in two random halves)")
     read = [load_data(calibration, sheet, missing_codes), load_data(validation, sheet, missing_codes)]
+    for loaded in read:
+        check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
+    read = [_words_coded(spec, loaded) for loaded in read]
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
-    for frame, source in ((cal_frame, cal_source), (val_frame, val_source)):
-        check_columns(spec, [str(c) for c in frame.columns], source)
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
     screens = [screened(loaded.frame, spec.observed_names, loaded.source, loaded.non_answers, loaded.cautions) for loaded in read]
     with odd_values_named(next((s for s in screens if s.odd_values), screens[0])):
@@ -296,6 +298,12 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     return replace(result, data_problems=sum((odd_value_problems(s) for s in screens), ()))
 
 
+def _words_coded(spec: Spec, loaded):
+    """The data read with the answer words of the model's 'answers' statements as their codes."""
+    frame, _ = code_answer_words(spec, loaded.frame, loaded.source)
+    return loaded if frame is loaded.frame else replace(loaded, frame=frame)
+
+
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1,
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), **options) -> tuple[Replication, Replication]:
@@ -307,8 +315,9 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
                                                      options if missing is None else {**options, "missing": missing})
     loaded = load_data(data, sheet, missing_codes)
+    check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
+    loaded = _words_coded(spec, loaded)
     frame, source = loaded.frame, loaded.source
-    check_columns(spec, [str(c) for c in frame.columns], source)
     screen = screened(frame, spec.observed_names, source, loaded.non_answers, loaded.cautions)
     with odd_values_named(screen):
         pair, halves = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)

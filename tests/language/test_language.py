@@ -106,6 +106,21 @@ def test_reversed_items_with_their_answer_scale():
     assert build_parameter_table(spec).parameters == plain.parameters
 
 
+def test_answers_say_what_each_word_means():
+    spec = parse_model('factor f: a, b, c, d\nanswers "Disagree" = 1, "Agree" = 2, 9 = 9\n'
+                       'answers "No" = 0, "Yes" = 1 for c, d\n')
+    codings = spec.answer_codings()
+    assert [c.answers[1].word for c in codings.values()] == ["Agree", "Agree", "Yes", "Yes"]
+    assert codings["a"].codes_by_word() == {"disagree": 1.0, "agree": 2.0}  # matched without case or spaces
+    assert codings["a"].codes_by_number() == {9.0: 9.0}
+    assert codings["c"].item_names == ("c", "d") and codings["c"].location.line == 3
+    # a list continued on the next line after a comma; the coding changes no parameter of the model
+    long = parse_model('factor f: a, b, c\nanswers "Never" = 1,\n    "Often" = 2\n')
+    assert [a.code for a in long.answers[0].answers] == [1.0, 2.0]
+    plain = build_parameter_table(parse_model("factor f: a, b, c\n"))
+    assert build_parameter_table(long).parameters == plain.parameters
+
+
 def test_comments_and_blank_lines_only_around_statements():
     spec = parse_model("\n\n# comment\n   \nfactor f: a, b, c   # trailing comment\n\n")
     assert spec.factor_names == ("f",)
@@ -177,6 +192,7 @@ def _error(text: str) -> ModelError:
         ("factor f: a, b, c\nreversed b 1 to 5\n", 2, 12, "expected ',', '..' or 'on'"),
         ("factor f: a, b, c\nreversed b on 1\n", 2, 16, "expected 'to'"),
         ("factor f: a, b, c\nreverse b on 1 to 5\n", 2, 1, "unknown statement 'reverse'; did you mean 'reversed'?"),
+        ("factor f: a, b, c\nanswer 'No' = 0\n", 2, 1, "did you mean 'answers'?"),  # of answers recorded as words
     ],
 )
 def test_error_messages(text, line, column, words):
@@ -227,3 +243,29 @@ def test_comment_and_blank_lines_inside_a_list_continued_after_a_comma():
     with pytest.raises(ModelError) as caught:  # a place after such lines is still reported at its own line
         parse_model("factor a: x1, x2,\n# note\n\n  x3\nfactor b x4\n", source="m.cfa")
     assert str(caught.value).startswith("m.cfa:5:10:")
+
+
+#: each error of an 'answers' statement (answers recorded as words), written below a one-factor model: the statement
+#: lines -> the error's line, column and words
+ANSWERS_ERRORS = {
+    'answers "Agree" = 2, " agree" = 3': (2, 22, "the answer ' agree' is listed twice in this statement "
+                                                   "(as 'Agree' too; case and surrounding spaces"),
+    'answers "No" = 0, 9 = 1, 9 = 2': (2, 26, "the answer '9' is listed twice"),
+    'answers 1 = 1, 2 = 2': (2, 1, 'lists numbers only'),
+    'answers " " = 1': (2, 9, 'an answer word is empty'),
+    'answers "No" = 1e9': (2, 16, "the code 1e+09 is not a rating scale's answer"),
+    'answers "No" = 0\nanswers "Yes" = 1': (3, 1, "a second 'answers' statement for every item "
+                                                      "(the first is on line 2)"),
+    'answers "No" = 0 for f': (2, 22, "'f' is a factor; 'answers' says what the answers"),
+    'answers "No" = 0 for z': (2, 22, "'z' is not a factor or an indicator"),
+    'answers "No" = 0 for b\nanswers "Yes" = 1 for c, b': (3, 26, "the answers of 'b' are "
+                                                                       "given twice (first on line 2)"),
+    'answers "No" 0': (2, 14, "expected '='"),
+    'answers "No" = "zero"': (2, 16, 'expected a number'),
+}
+
+
+@pytest.mark.parametrize("statements", list(ANSWERS_ERRORS))
+def test_answers_statement_errors(statements):
+    line, column, words = ANSWERS_ERRORS[statements]
+    test_error_messages("factor f: a, b, c\n" + statements + "\n", line, column, words)

@@ -1,0 +1,45 @@
+"""The common answer scales whose words a column of text may hold, and the 'answers' statement a refusal of such a
+column suggests (data/answer_words.py codes the words once a model states them; nothing here applies a coding)."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from cfa_tool.language.spec import answer_key
+from cfa_tool.numbers import number as strict_number
+
+#: the common answer scales whose words, all found in one column, let the refusal of a text column suggest the
+#: statement to write (never applied without it); each scale in its order, lowest first
+COMMON_SCALES: tuple[tuple[str, ...], ...] = (
+    ("Strongly disagree", "Disagree", "Neither agree nor disagree", "Agree", "Strongly agree"),
+    ("Strongly disagree", "Disagree", "Somewhat disagree", "Neither agree nor disagree", "Somewhat agree", "Agree",
+     "Strongly agree"),
+    ("Strongly disagree", "Disagree", "Agree", "Strongly agree"),
+    ("Never", "Rarely", "Sometimes", "Often", "Always"),
+    ("Never", "Rarely", "Sometimes", "Often", "Very often"),
+    ("Very dissatisfied", "Dissatisfied", "Neither satisfied nor dissatisfied", "Satisfied", "Very satisfied"),
+    ("Very dissatisfied", "Dissatisfied", "Neutral", "Satisfied", "Very satisfied"),
+)
+
+
+def suggested_statement(values: np.ndarray) -> str | None:
+    """The 'answers' statement to write for a column whose words (case and surrounding spaces aside) all come from
+    one common agreement, frequency or satisfaction scale, in the scale's order with the words as the file writes
+    them (numbers among them aside); None otherwise.  Only a suggestion: it is never applied without the statement."""
+    written: dict[str, str] = {}
+    for value in values:
+        if isinstance(value, str) and value.strip() and strict_number(value.strip()) is None:
+            written.setdefault(answer_key(value), value.strip())
+        # numbers among the words (a means row, a bad export) do not decide the scale; the statement's own check
+        # names them when it is written
+    if not written:
+        return None
+    keyed = [(scale, [answer_key(w) for w in scale]) for scale in COMMON_SCALES]
+    whole = [(scale, keys) for scale, keys in keyed if set(written) == set(keys)]
+    holding = [(scale, keys) for scale, keys in keyed if set(written) <= set(keys)]
+    found = whole or holding
+    if len(written) < 2 or len(found) != 1:  # no scale, or several that would code the words differently
+        return None
+    scale, keys = found[0]
+    listed = ", ".join(f'"{written.get(k, w)}" = {i}' for i, (k, w) in enumerate(zip(keys, scale), start=1))
+    return f"answers {listed}"

@@ -1,0 +1,227 @@
+"""Answers recorded as words ('Strongly disagree' ... 'Strongly agree'), coded by the model's 'answers' statements.
+
+The tool never guesses the order of answer words: only words an 'answers' statement lists are coded, each to the
+number the statement gives it.  Matching ignores case and the spaces around a word, never parts of words; an
+empty cell stays no answer; any other cell (a word not listed, a number the statement does not list) is an error
+naming the file, column, data row and the cell.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+from dataclasses import replace
+
+from cfa_tool.data.moments import row_numbers
+from cfa_tool.errors import DataError, Location, ModelError, OptionError, printable
+from cfa_tool.language.spec import AnswerCoding, AnswerWord, Name, Spec, answer_key
+from cfa_tool.numbers import number as strict_number
+
+def _shown(value: object) -> str:
+    if isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(value, (bool, np.bool_)):
+        return f"{float(value):g}"
+    text = str(value).strip()
+    return printable(text if len(text) <= 40 else text[:37] + "...")
+
+
+def _listed(coding: AnswerCoding) -> str:
+    return ", ".join(f"'{printable(a.shown)}'" for a in coding.answers)
+
+
+def _code_of(value: object, words: dict[str, float], numbers: dict[float, float]) -> tuple[float, str | None]:
+    """The code of one distinct cell value, or NaN and what is wrong with it ('word', 'number', 'other')."""
+    if value is None or value is pd.NA or (isinstance(value, float) and value != value):
+        return np.nan, None
+    if isinstance(value, str):
+        if not value.strip():
+            return np.nan, None  # a cell of spaces is an empty cell
+        code = words.get(answer_key(value))
+        if code is not None:
+            return code, None
+        number = strict_number(value.strip())
+        if number is None:
+            return np.nan, "word"
+        value = number
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, float, np.integer, np.floating)):
+        return np.nan, "other"
+    code = numbers.get(float(value))
+    return (code, None) if code is not None else (np.nan, "number")
+
+
+def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
+                      only: tuple[str, ...] | None = None) -> tuple[pd.DataFrame, list[str]]:
+    """``frame`` with the items its 'answers' statements cover (of them, those in ``only`` when given) coded as
+    numbers (a copy; the caller's frame is not changed), and one note per statement saying how the answers were
+    coded and, if so, which words share a code."""
+    codings = spec.answer_codings()
+    if only is not None:
+        codings = {x: c for x, c in codings.items() if x in only}
+    if not codings:
+        return frame, []
+    frame = frame.copy()
+    for item, coding in codings.items():
+        words, numbers = coding.codes_by_word(), coding.codes_by_number()
+        column = frame[item]
+        distinct = pd.unique(column.to_numpy(dtype=object))
+        mapping: dict[object, float] = {}
+        for value in distinct:
+            code, wrong = _code_of(value, words, numbers)
+            if wrong == "number" and not any(isinstance(v, str) and answer_key(v) in words for v in distinct):
+                raise DataError(f"{source}: column '{printable(item)}' holds numbers, not the words of {coding.origin} "
+                                f"('{_shown(value)}' in data row {_first_row(column, value, row_numbers(column))}); "
+                                + ("name the items whose answers are words with 'for ITEMS' at the end of the statement"
+                                   if coding.carried_from is None and not coding.items else
+                                   "take the column out of the statement's items" if coding.carried_from is None else
+                                   "score a file whose answers are the words the fit coded"))
+            if wrong is not None:
+                raise _cell_error(source, item, column, value, wrong, coding, row_numbers(column))
+            if value is not None and not (isinstance(value, float) and value != value) and value is not pd.NA:
+                mapping[value] = code
+        frame[item] = column.map(mapping).astype(float)
+    return frame, answer_notes(spec, tuple(codings))
+
+
+def _first_row(column: pd.Series, value: object, rows: np.ndarray) -> int:
+    """The data-row number of the first cell holding ``value``."""
+    return int(rows[int(np.flatnonzero(column.to_numpy(dtype=object) == value)[0])])
+
+
+def _cell_error(source: str, item: str, column: pd.Series, value: object, wrong: str, coding: AnswerCoding,
+                rows: np.ndarray) -> DataError:
+    where = f"{source}: column '{printable(item)}', data row {_first_row(column, value, rows)}"
+    line = coding.origin
+    if wrong == "word":
+        return DataError(f"{where}: the answer '{_shown(value)}' is not one of the words of {line} ({_listed(coding)}); "
+                         f"add it to the statement with its code, or correct the cell (leave it empty for no answer)")
+    if wrong == "number":
+        number = float(strict_number(value.strip()) if isinstance(value, str) else value)
+        remedy = ("a row of means or totals below the answers? remove it, or leave it out with --keep" if
+                  number != round(number) else "check the file, or mark a code for no answer with --missing-codes"
+                  + ("" if coding.carried_from else ", or list the number in the statement with its code"))
+        return DataError(f"{where}: holds the number {_shown(value)} among answers recorded as words, and {line} does "
+                         f"not list it (a column of words and numbers is often a bad export); {remedy}")
+    return DataError(f"{where}: holds '{_shown(value)}', which is not an answer word of {line} ({_listed(coding)})")
+
+
+def _listed_answers(coding: AnswerCoding) -> tuple:
+    return tuple((a.word, a.number, a.code) for a in coding.answers)
+
+
+def coding_described(answers: tuple) -> str:
+    """(word, number, code) triples in words: '1 (Strongly disagree) to 5 (Strongly agree)' when the codes are
+    distinct whole numbers one apart, else each code with its answers ('0 (No), 1 (Yes, Often)')."""
+    by_code: dict[float, list[str]] = {}
+    for word, number, code in answers:
+        by_code.setdefault(code, []).append(printable(word) if word is not None else f"{number:g}")
+    codes = sorted(by_code)
+    run = len(codes) > 2 and all(len(by_code[c]) == 1 for c in codes) and codes == [codes[0] + k for k in range(len(codes))]
+    if run:
+        return f"{codes[0]:g} ({by_code[codes[0]][0]}) to {codes[-1]:g} ({by_code[codes[-1]][0]})"
+    return ", ".join(f"{c:g} ({', '.join(by_code[c])})" for c in codes)
+
+
+def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None) -> list[str]:
+    """How the answers recorded as words were coded, one note per 'answers' statement in use (and the words that
+    share a code, which are analysed as one answer); ``coded``: the items coded, when not all the statements cover."""
+    codings = spec.answer_codings()
+    if coded is not None:
+        codings = {x: c for x, c in codings.items() if x in coded}
+    notes = []
+    for coding in spec.answers:
+        items = [x for x, c in codings.items() if c is coding]
+        if not items:
+            continue
+        which = "every item" if len(items) == len(spec.observed_names) else \
+            f"{len(items)} item{'s' if len(items) > 1 else ''} ({', '.join(printable(x) for x in items)})"
+        notes.append(f"answers recorded as words were coded {coding_described(_listed_answers(coding))} in {which}, as {coding.origin} says")
+        by_code: dict[float, list[str]] = {}
+        for answer in coding.answers:
+            by_code.setdefault(answer.code, []).append(answer.shown)
+        for code, shared in by_code.items():
+            if len(shared) > 1:
+                notes.append(f"the answers {' and '.join(repr(printable(w)) for w in shared)} share the code {code:g} "
+                             f"({coding.origin}), so they are analysed as one answer")
+    return notes
+
+
+def coding_record(spec: Spec) -> tuple:
+    """The model's coding of answer words as a fit keeps it (pipeline.results.DataSummary.answer_coding): per
+    statement in use, the items it covers and each (word, number, code) it lists."""
+    codings = spec.answer_codings()
+    out = []
+    for coding in spec.answers:
+        items = tuple(x for x, c in codings.items() if c is coding)
+        if items:
+            out.append((items, tuple((a.word, a.number, a.code) for a in coding.answers)))
+    return tuple(out)
+
+
+def coding_json(record: tuple) -> list[dict]:
+    """The JSON of a :func:`coding_record`: [{"items": [...], "answers": [{"word": ..., "code": ...}, ...]}]."""
+    return [{"items": list(items), "answers": [({"word": w} if w is not None else {"number": n}) | {"code": c}
+                                               for w, n, c in answers]} for items, answers in record]
+
+
+def coding_from_json(value: object, source: str) -> tuple:
+    """A :func:`coding_record` from a saved fit's JSON; an error naming the file when it is not one."""
+    try:
+        out = []
+        for entry in value or ():
+            answers = tuple((str(a["word"]) if "word" in a else None, float(a["number"]) if "word" not in a else None,
+                             float(a["code"])) for a in entry["answers"])
+            out.append((tuple(str(x) for x in entry["items"]), answers))
+        return tuple(out)
+    except (KeyError, TypeError, ValueError):
+        raise OptionError(f"{source}: the coding of answer words (data.answer_coding) cannot be read") from None
+
+
+def with_saved_coding(spec: Spec, record: tuple, source: str) -> Spec:
+    """The model used to score other data with a saved fit: the fit's coding of answer words, which the model file
+    may repeat but not change (other codes would put the answers on another scale than the fitted one)."""
+    mine = coding_record(spec)
+    if not record:
+        if mine:
+            raise OptionError(f"the model's 'answers' statements code answer words, and the earlier fit {source} read "
+                              f"its answers as numbers; score data of the fit's kind, or fit the model again")
+        return spec
+    if mine:
+        if _comparable(mine) != _comparable(record):
+            raise OptionError(f"the model's 'answers' statements code the answers otherwise than the earlier fit "
+                              f"{source} did; give the model file the fit was made with")
+        return spec
+    where = Location(source, 1, 1)
+    codings = tuple(AnswerCoding(tuple(AnswerWord(w, n, c, where) for w, n, c in answers),
+                                 tuple(Name(x, where) for x in items), where, carried_from=source)
+                    for items, answers in record)
+    return replace(spec, answers=codings)
+
+
+def _comparable(record: tuple) -> set:
+    return {(item, tuple(sorted(((answer_key(w) if w is not None else None), n, c) for w, n, c in answers)))
+            for items, answers in record for item in items}
+
+
+def refuse_different_codings(specs, names) -> None:
+    """Models compared on one data file read its answers one way: an item whose answer words two models code
+    differently (or one codes and another reads as numbers) is an error naming the item and the models."""
+    seen: dict[str, tuple[str, object]] = {}
+    for spec, name in zip(specs, names):
+        coded = {x: _comparable((((x,), _listed_answers(c)),))
+                 for x, c in spec.answer_codings().items()}
+        for item in spec.observed_names:
+            mine = coded.get(item)
+            if item in seen and seen[item][1] != mine:
+                raise OptionError(f"the models {seen[item][0]} and {name} read the answers of '{printable(item)}' "
+                                  f"differently (their 'answers' statements differ, or one has none); give the "
+                                  f"models the same 'answers' statements")
+            seen.setdefault(item, (name, mine))
+
+
+def refuse_for_summary_statistics(spec: Spec, source: str) -> None:
+    """An 'answers' statement cannot apply to summary statistics (no answers to code): an error naming it."""
+    if spec.answers:
+        coding = spec.answers[0]
+        raise ModelError(f"{coding.origin} codes answers recorded as words, and {source} holds summary statistics, not "
+                         f"answers; remove the statement or give the rows of answers", coding.location,
+                         spec.source_line(coding.location))

@@ -1,0 +1,226 @@
+"""Answers recorded as words, coded by the model's 'answers' statements (data/answer_words.py).
+
+The reference for every fit here is the same model fitted to the same answers stored as numbers: a file of words
+and the 'answers' statement must give that fit exactly (the numbers' fits are themselves checked against published
+analyses and semopy elsewhere).  The data are invented: a fictional transit agency's rider survey, simulated with
+a fixed seed.
+"""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.cli import main
+from cfa_tool.data.answer_scales import suggested_statement
+from cfa_tool.errors import DataError, OptionError
+from cfa_tool.reporting.paragraph import methods_paragraph
+
+WORDS = {1: "Strongly disagree", 2: "Disagree", 3: "Neither agree nor disagree", 4: "Agree", 5: "Strongly agree"}
+STATEMENT = ('answers "Strongly disagree" = 1, "Disagree" = 2, "Neither agree nor disagree" = 3, "Agree" = 4,\n'
+             '    "Strongly agree" = 5\n')
+PLAIN = "factor comfort: seat, clean, quiet\nfactor service: driver, info, punctual\n"
+MODEL = PLAIN + STATEMENT
+ITEMS = ("seat", "clean", "quiet", "driver", "info", "punctual")
+
+
+def _answers(n: int = 300, seed: int = 20261203) -> pd.DataFrame:
+    """Five-point answers of two correlated traits (loadings .7), some missing."""
+    rng = np.random.default_rng(seed)
+    traits = rng.multivariate_normal([0, 0], [[1, .4], [.4, 1]], size=n)
+    frame = pd.DataFrame({x: np.digitize(.7 * traits[:, k // 3] + rng.normal(0, .7, n), [-1.2, -.4, .4, 1.2]) + 1.0
+                          for k, x in enumerate(ITEMS)})
+    frame.iloc[rng.integers(0, n, 6), 2] = np.nan
+    frame["line"] = rng.choice(["harbour", "hills"], n)
+    return frame
+
+
+def _as_words(numbers: pd.DataFrame) -> pd.DataFrame:
+    words = numbers.copy()
+    for x in ITEMS:
+        words[x] = numbers[x].map(WORDS).astype(object)
+    words.loc[3, "seat"] = "  " + WORDS[int(numbers.loc[3, "seat"])].upper() + " "  # case and spaces do not count
+    return words
+
+
+@pytest.fixture(scope="module")
+def files(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("words")
+    numbers = _answers()
+    numbers.to_csv(folder / "numbers.csv", index=False)
+    _as_words(numbers).to_csv(folder / "words.csv", index=False)
+    _as_words(numbers).to_excel(folder / "words.xlsx", index=False)
+    (folder / "words.cfa").write_text(MODEL)
+    (folder / "plain.cfa").write_text(PLAIN)
+    return folder
+
+
+@pytest.mark.parametrize("name", ["words.csv", "words.xlsx"])
+def test_a_fit_of_words_equals_the_fit_of_the_numbers(files, name):
+    words = cfa_tool.fit(MODEL, files / name)
+    numbers = cfa_tool.fit(PLAIN, files / "numbers.csv")
+    assert np.allclose(words.theta, numbers.theta, rtol=0, atol=1e-10)
+    assert abs(words.fit.chi_square - numbers.fit.chi_square) < 1e-10
+    assert words.n_obs == numbers.n_obs == 300
+    note = ("answers recorded as words were coded 1 (Strongly disagree) to 5 (Strongly agree) in every item, as the "
+            "'answers' statement on line 3 says")
+    assert note in words.warnings and note not in numbers.warnings
+    paragraph = methods_paragraph(words)
+    assert "Answers recorded as words were coded 1 (Strongly disagree) to 5 (Strongly agree)." in paragraph
+    assert "recorded as words" not in methods_paragraph(numbers)
+    coding = words.to_dict()["data"]["answer_coding"]
+    assert coding == [{"items": list(ITEMS), "answers": [{"word": WORDS[k], "code": float(k)} for k in range(1, 6)]}]
+    assert "answer_coding" not in numbers.to_dict()["data"]
+
+
+def test_ordinal_fits_see_the_codes_as_their_categories(files):
+    words = cfa_tool.fit(MODEL, files / "words.csv", ordinal="all")
+    numbers = cfa_tool.fit(PLAIN, files / "numbers.csv", ordinal="all")
+    assert np.allclose(words.theta, numbers.theta, rtol=0, atol=1e-10)
+    assert words.to_dict()["data"]["category_counts"] == numbers.to_dict()["data"]["category_counts"]
+    assert [c["value"] for c in words.to_dict()["data"]["category_counts"]["seat"]] == [1, 2, 3, 4, 5]
+
+
+def test_compare_invariance_and_check_read_the_words_so_too(files):
+    single = "factor rider: seat, clean, quiet, driver, info, punctual\n"
+    words = cfa_tool.compare([MODEL, single + STATEMENT], files / "words.csv")
+    numbers = cfa_tool.compare([PLAIN, single], files / "numbers.csv")
+    for a, b in zip(words.results, numbers.results):
+        assert abs(a.fit.chi_square - b.fit.chi_square) < 1e-10
+    with pytest.raises(OptionError, match="read the answers of 'seat' differently"):
+        cfa_tool.compare([MODEL, single], files / "words.csv")
+    steps_w = cfa_tool.invariance(MODEL, files / "words.csv", group="line")
+    steps_n = cfa_tool.invariance(PLAIN, files / "numbers.csv", group="line")
+    assert [s.result.fit.chi_square for s in steps_w.steps] == pytest.approx(
+        [s.result.fit.chi_square for s in steps_n.steps], abs=1e-10)
+    checked = cfa_tool.check(MODEL, files / "words.csv")
+    assert any("recorded as words" in n for n in checked.notes)
+
+
+def test_scores_with_a_saved_fit_read_new_data_with_its_coding(files, tmp_path):
+    assert main(["fit", str(files / "words.cfa"), "--data", str(files / "words.csv"), "--json",
+                 str(tmp_path / "fit.json")]) == 0
+    assert main(["fit", str(files / "plain.cfa"), "--data", str(files / "numbers.csv"), "--json",
+                 str(tmp_path / "plain.json")]) == 0
+    # the model file given to scores need not repeat the statement: the fit's JSON carries the coding
+    assert main(["scores", str(files / "plain.cfa"), "--from-fit", str(tmp_path / "fit.json"), "--data",
+                 str(files / "words.csv"), "--output", str(tmp_path / "w.csv")]) == 0
+    assert main(["scores", str(files / "plain.cfa"), "--from-fit", str(tmp_path / "plain.json"), "--data",
+                 str(files / "numbers.csv"), "--output", str(tmp_path / "n.csv")]) == 0
+    w, n = pd.read_csv(tmp_path / "w.csv"), pd.read_csv(tmp_path / "n.csv")
+    assert np.allclose(w.select_dtypes("number"), n.select_dtypes("number"), equal_nan=True, rtol=0, atol=1e-10)
+    saved = json.loads((tmp_path / "fit.json").read_text())["data"]["answer_coding"]
+    assert saved[0]["answers"][0] == {"word": "Strongly disagree", "code": 1.0}
+    # numbers scored with a fit of words: the fit's coding lists no numbers
+    assert main(["scores", str(files / "plain.cfa"), "--from-fit", str(tmp_path / "fit.json"), "--data",
+                 str(files / "numbers.csv"), "--output", str(tmp_path / "x.csv")]) == 2
+    assert not (tmp_path / "x.csv").exists()
+    # a model file that codes the words otherwise than the fit did
+    other = files / "other.cfa"
+    other.write_text(MODEL.replace('"Strongly agree" = 5', '"Strongly agree" = 6'))
+    from cfa_tool.workflows.factor_scores import score_with_saved_fit
+    with pytest.raises(OptionError, match="code the answers otherwise than the earlier fit"):
+        score_with_saved_fit(other, tmp_path / "fit.json", files / "words.csv")
+
+
+def _fit_frame(frame: pd.DataFrame, model: str = MODEL):
+    return cfa_tool.fit(model, frame)
+
+
+def test_a_word_the_statement_does_not_list_is_an_error_naming_the_cell(files):
+    frame = _as_words(_answers())
+    frame.loc[7, "clean"] = "Agreed"  # never a partial match
+    with pytest.raises(DataError) as err:
+        _fit_frame(frame)
+    message = str(err.value)
+    assert "column 'clean', data row 8: the answer 'Agreed' is not one of the words of the 'answers' statement on " \
+           "line 3 ('Strongly disagree', 'Disagree', 'Neither agree nor disagree', 'Agree', 'Strongly agree')" in message
+
+
+def test_a_number_among_the_words_is_an_error_unless_listed(files):
+    frame = _as_words(_answers())
+    frame.loc[10, "info"] = 4
+    with pytest.raises(DataError, match="column 'info', data row 11: holds the number 4 among answers recorded as "
+                                        "words, and the 'answers' statement on line 3 does not list it"):
+        _fit_frame(frame)
+    frame.loc[10, "info"] = "3.24"  # a means row at the foot of an export
+    with pytest.raises(DataError, match="a row of means or totals below the answers"):
+        _fit_frame(frame)
+    frame.loc[10, "info"] = 9
+    listed = cfa_tool.fit(MODEL.replace("= 5\n", "= 5, 9 = 3\n"), frame)  # listed: coded as the statement says
+    reference = _answers()
+    reference.loc[10, "info"] = 3.0
+    assert np.allclose(listed.theta, cfa_tool.fit(PLAIN, reference).theta, rtol=0, atol=1e-10)
+
+
+def test_empty_cells_stay_no_answer_and_shared_codes_are_named(files):
+    numbers = _answers()
+    frame = _as_words(numbers)
+    frame.loc[[0, 1], "quiet"] = ["", "   "]
+    numbers.loc[[0, 1], "quiet"] = np.nan
+    shared = MODEL.replace('"Strongly agree" = 5', '"Strongly agree" = 5, "Completely agree" = 5')
+    result = cfa_tool.fit(shared, frame)
+    assert np.allclose(result.theta, cfa_tool.fit(PLAIN, numbers).theta, rtol=0, atol=1e-10)
+    assert ("the answers 'Strongly agree' and 'Completely agree' share the code 5 (the 'answers' statement on "
+            "line 3), so they are analysed as one answer") in result.warnings
+
+
+def test_statements_for_some_items_code_only_those(files):
+    numbers = _answers()
+    frame = numbers.copy()
+    frame["punctual"] = numbers["punctual"].map({1: "never", 2: "rarely", 3: "sometimes", 4: "often", 5: "always"})
+    model = PLAIN + 'answers "Never" = 1, "Rarely" = 2, "Sometimes" = 3, "Often" = 4, "Always" = 5 for punctual\n'
+    result = cfa_tool.fit(model, frame)
+    assert np.allclose(result.theta, cfa_tool.fit(PLAIN, numbers).theta, rtol=0, atol=1e-10)
+    assert any("coded 1 (Never) to 5 (Always) in 1 item (punctual)" in w for w in result.warnings)
+
+
+def test_the_refusal_of_words_suggests_the_statement_but_never_applies_it(files, capsys):
+    assert main(["fit", str(files / "plain.cfa"), "--data", str(files / "words.csv")]) == 2
+    err = capsys.readouterr().err
+    assert "holds text" in err and err.count("\n") == 1
+    assert ('answers "Strongly disagree" = 1, "Disagree" = 2, "Neither agree nor disagree" = 3, "Agree" = 4, '
+            '"Strongly agree" = 5') in err
+    # words of no common scale (or of several that would code them otherwise) get no suggestion
+    assert suggested_statement(np.array(["Blue", "Green"], dtype=object)) is None
+    assert suggested_statement(np.array(["Disagree", "Agree"], dtype=object)) is None  # 4 or 5 points?
+    assert suggested_statement(np.array(["often", "Never", "Always", None, 3.5], dtype=object)) == \
+        'answers "Never" = 1, "Rarely" = 2, "Sometimes" = 3, "often" = 4, "Always" = 5'
+
+
+def test_replication_and_bootstrap_read_the_words_so_too(files):
+    words = cfa_tool.split_half(MODEL, files / "words.csv", seed=3)
+    numbers = cfa_tool.split_half(PLAIN, files / "numbers.csv", seed=3)
+    for a, b in zip(words, numbers):
+        assert abs(a.calibration_result.fit.chi_square - b.calibration_result.fit.chi_square) < 1e-10
+    w = cfa_tool.bootstrap(MODEL, files / "words.csv", replications=20, seed=2, workers=1)
+    n = cfa_tool.bootstrap(PLAIN, files / "numbers.csv", replications=20, seed=2, workers=1)
+    assert w.to_dict()["result"] == n.to_dict()["result"]  # the same resamples, the same intervals
+    assert any("recorded as words" in note for note in w.fit.warnings)
+
+
+def test_comparison_and_invariance_paragraphs_say_how_the_words_were_coded(files, tmp_path):
+    from cfa_tool.errors import ModelError
+    from cfa_tool.reporting.paragraph import comparison_paragraph
+
+    single = "factor rider: seat, clean, quiet, driver, info, punctual\n"
+    sentence = "Answers recorded as words were coded 1 (Strongly disagree) to 5 (Strongly agree)."
+    compared = cfa_tool.compare([MODEL, single + STATEMENT], files / "words.csv")
+    assert sentence in comparison_paragraph(compared)
+    assert compared.results[1].to_dict()["data"]["answer_coding"][0]["items"] == list(ITEMS)
+    ladder = cfa_tool.invariance(MODEL, files / "words.csv", group="line")
+    assert all(s.result.data.answer_coding for s in ladder.steps)
+    # summary statistics hold no answers to code: the statement cannot apply
+    stats = tmp_path / "cov.stats"
+    numbers = _answers().dropna()[list(ITEMS)]
+    cov = numbers.cov().to_numpy()
+    lines = ["covariance," + ",".join(ITEMS)] + [f"{x}," + ",".join(f"{v:.6f}" for v in cov[i, :i + 1])
+                                                 for i, x in enumerate(ITEMS)]
+    stats.write_text("\n".join(lines) + f"\nn,{len(numbers)}\n")
+    assert cfa_tool.fit(PLAIN, stats).converged  # the file is read without the statement
+    with pytest.raises(ModelError, match="holds summary statistics, not answers; remove the statement"):
+        cfa_tool.fit(MODEL, stats)
