@@ -61,8 +61,8 @@ class Weighting(Choice):
 
 
 #: The adjusted test of least squares for ordinal items, in the words every report, note and methods paragraph uses
-#: (declared once): the statistic is chi-square x scale + shift (Asparouhov & Muthen 2010), and the difference of two
-#: nested fits is adjusted the same way (Satorra 2000; Asparouhov & Muthen 2006).
+#: (declared once): the statistic is chi-square x scale + shift (Asparouhov & Muthén 2010), and the difference of two
+#: nested fits is adjusted the same way (Satorra 2000; Asparouhov & Muthén 2006).
 ADJUSTED_TEST = "scale-shifted, mean and variance adjusted"
 #: why nested ordinal fits are not judged by changes in fit indices (compare leaves them out, invariance refuses the
 #: rule that reads them)
@@ -84,8 +84,8 @@ class FitTest(Choice):
     SATORRA_BENTLER = ("satorra-bentler", "Satorra-Bentler",
                        "the Satorra-Bentler scaled test and robust standard errors")
     YUAN_BENTLER = ("yuan-bentler", "Yuan-Bentler", "the Yuan-Bentler scaled test and robust standard errors")
-    SCALE_SHIFTED = ("scale-shifted", f"{ADJUSTED_TEST} (Asparouhov & Muthen 2010)",
-                     f"{ADJUSTED_TEST} chi-square test (Asparouhov & Muthen, 2010)", False)
+    SCALE_SHIFTED = ("scale-shifted", f"{ADJUSTED_TEST} (Asparouhov & Muthén 2010)",
+                     f"{ADJUSTED_TEST} chi-square test (Asparouhov & Muthén, 2010)", False)
     # the robust test that suits the data, resolved before any fit (FitOptions): Satorra-Bentler with
     # complete rows, Yuan-Bentler with full-information ML, the adjusted test of least squares for ordinal items
     ROBUST = ("robust", "robust", "a robust test", True)
@@ -160,7 +160,7 @@ class DifferenceMethod(str, Enum):
     LIKELIHOOD_RATIO = "likelihood ratio"
     SATORRA_BENTLER_2001 = "Satorra-Bentler 2001 scaled difference"
     SATORRA_BENTLER_2010 = "Satorra-Bentler 2010 strictly positive scaled difference"
-    SCALE_SHIFTED = f"{ADJUSTED_TEST} difference (Asparouhov & Muthen 2006)"
+    SCALE_SHIFTED = f"{ADJUSTED_TEST} difference (Asparouhov & Muthén 2006)"
 
     def __str__(self) -> str:
         return self.value
@@ -177,7 +177,7 @@ _DIFFERENCE_PHRASES = {
     DifferenceMethod.SATORRA_BENTLER_2010: "the strictly positive scaled chi-square difference test (Satorra & Bentler, "
                                            "2010)",
     DifferenceMethod.SCALE_SHIFTED: f"the {ADJUSTED_TEST} chi-square difference test (Satorra, 2000; Asparouhov & "
-                                    f"Muthen, 2006)",
+                                    f"Muthén, 2006)",
 }
 
 

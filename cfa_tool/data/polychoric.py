@@ -6,7 +6,7 @@ proportions, tau_c = Phi^-1(P(x <= c)); then each pair's correlation by
 maximising the bivariate-normal likelihood of its contingency table with the
 thresholds held fixed.  The asymptotic covariance matrix of the correlations
 comes from their influence functions, corrected for the estimated thresholds
-(Muthen 1984; Joreskog 1994):
+(Muthén 1984; Joreskog 1994):
 
     IF(rho)_n = I_rr^-1 (s_n - I_rt IF(tau)_n),   IF(tau_c)_n = (1{x_n <= c} - F_c) / phi(tau_c)
 
@@ -20,7 +20,7 @@ variance are statistics too, with IF = x - m and (x - m)^2 - s^2 (divisor N).
 
 Under a sampling design every statistic is a pseudo-maximum-likelihood estimate: each row's
 contribution to the proportions, the contingency tables, the moments and the likelihoods is
-multiplied by its weight (Muthen & Satorra 1995; Asparouhov 2005), the expected derivatives
+multiplied by its weight (Muthén & Satorra 1995; Asparouhov 2005), the expected derivatives
 in the influence functions are weighted means, and the rows' influence functions are kept
 (``OrdinalMoments.influence``) for the design-based covariance of
 :func:`cfa_tool.inference.design.ordinal_design_covariance` (per-cluster sums within strata).
@@ -295,7 +295,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
     only the complete rows are used (listwise deletion).
 
     ``design``: the sampling design's columns (checked by :func:`cfa_tool.data.sample_design.check_design`):
-    every statistic is weighted (pseudo-maximum likelihood, Muthen & Satorra 1995), N is the sum of the
+    every statistic is weighted (pseudo-maximum likelihood, Muthén & Satorra 1995), N is the sum of the
     weights with frequency weights, and the rows' influence functions are returned for the design-based
     covariance instead of the covariance (a statistic on a part of the rows scales its influence by the
     weight of all rows over the weight of that part)."""

@@ -2,7 +2,7 @@
 
 Sampling weights are rescaled to sum to the number of rows analysed (in each group), so that
 weights all equal to one constant give exactly the unweighted estimates and N stays the number
-of rows for the test statistic (pseudo-maximum likelihood; Muthen & Satorra 1995).  Frequency
+of rows for the test statistic (pseudo-maximum likelihood; Muthén & Satorra 1995).  Frequency
 weights are counts: a row of weight 3 stands for three identical rows, and N is the sum of the
 weights.  The effective sample size is Kish's (1965) (sum w)^2 / sum w^2.
 """
@@ -159,9 +159,9 @@ class SampleDesign:
                 parts.append(f"sampling weights from the column {c.weights} (sum {self.sum_of_weights:.6g}, {within}; "
                              f"Kish's effective sample size {self.effective_n:.1f}), by "
                              + ("the weighted full-information likelihood (Asparouhov 2005)" if full_information else
-                                f"weighted thresholds and {correlations} (pseudo-maximum likelihood; Muthen & "
+                                f"weighted thresholds and {correlations} (pseudo-maximum likelihood; Muthén & "
                                 f"Satorra 1995; Asparouhov 2005)" if ordinal else
-                                "pseudo-maximum likelihood on weighted moments (Muthen & Satorra 1995)"))
+                                "pseudo-maximum likelihood on weighted moments (Muthén & Satorra 1995)"))
         if c.cluster is not None:
             parts.append(f"{self.clusters} clusters defined by {c.cluster}")
         if c.strata is not None:

@@ -7,20 +7,20 @@ sigma_g(theta), a diagonal weight W_g and the asymptotic covariance Gamma_g of s
 
     F(theta) = sum_g (N_g / N) (s_g - sigma_g(theta))' W_g (s_g - sigma_g(theta)),
 
-W_g = diag(Gamma_g)^-1 (diagonally weighted least squares; Muthen, du Toit & Spisic 1997) or the
+W_g = diag(Gamma_g)^-1 (diagonally weighted least squares; Muthén, du Toit & Spisic 1997) or the
 identity (unweighted).  N F is the statistic that the mean-and-variance adjustment corrects
 (:mod:`cfa_tool.inference.adjusted`).  The model statistics take one of two forms:
 
 * latent responses of unit variance (one group; the "delta" form): sigma = the implied
   covariances below the diagonal, which do not depend on the residual variances, so those are
   not parameters (they follow as 1 minus the common variance);
-* thresholds as parameters (any number of groups; Muthen & Asparouhov 2002, identified as Wu &
+* thresholds as parameters (any number of groups; Muthén & Asparouhov 2002, identified as Wu &
   Estabrook 2016 set out): with mu = nu + Lambda alpha and Sigma the latent responses' moments,
 
       tau~_jc = (tau_jc - mu_j) / sqrt(Sigma_jj),      rho_ij = Sigma_ij / sqrt(Sigma_ii Sigma_jj).
 
 Scoring uses 2 sum_g (N_g/N) D_g W_g D_g', the expected second derivatives for a correct model (the
-Gauss-Newton matrix of weighted least squares; Browne 1984, Muthen 1984); Newton's steps near the minimum use
+Gauss-Newton matrix of weighted least squares; Browne 1984, Muthén 1984); Newton's steps near the minimum use
 the exact Hessian, that matrix plus the residuals times the second derivatives of the statistics, in closed
 form for both forms (:meth:`OrdinalLeastSquares.observed_hessian`).
 """
@@ -291,10 +291,10 @@ class OrdinalLeastSquares:
 
             H = sum_g [2 (N_g/N) D_g W_g D_g' - 2 sum_k c_k d2 sigma_k / dtheta dtheta'],
 
-        the Gauss-Newton term 2 D'WD of weighted least squares (Browne 1984; Muthen 1984) plus the
+        the Gauss-Newton term 2 D'WD of weighted least squares (Browne 1984; Muthén 1984) plus the
         residuals times the statistics' curvature, which vanishes only for a model that fits exactly.  Each
         statistic is a function of a few moments of the latent responses (tau~ = (tau - mu_j) v_j^-1/2,
-        rho = Sigma_ij (v_i v_j)^-1/2 with v = diag Sigma; Muthen & Asparouhov 2002), so by the chain rule
+        rho = Sigma_ij (v_i v_j)^-1/2 with v = diag Sigma; Muthén & Asparouhov 2002), so by the chain rule
         its curvature is
 
             sum_a (df/da) d2a + sum_ab (d2f/da db) da db',

@@ -1,12 +1,12 @@
 """Rotation of the exploratory blocks of a fitted confirmatory model (exploratory structural equation
-modelling; Asparouhov & Muthen 2009).
+modelling; Asparouhov & Muthén 2009).
 
 A block's factors are fitted in the rotational identification of exploratory factor analysis
 (factor variances 1, factors uncorrelated, the j-th factor's loadings on the block's first j - 1
 items fixed at 0; see ``language.spec.ExploratoryBlock``).  Its loadings are then rotated as an
 exploratory solution is (``exploration.rotation``, gradient projection): the unrotated loadings A
 are standardized by the items' model-implied standard deviations (1 for the latent responses of
-ordinal items, whose residual variances are 1 minus their common variances; Muthen 1984) (so that the rotation does not
+ordinal items, whose residual variances are 1 minus their common variances; Muthén 1984) (so that the rotation does not
 depend on the items' units, as an exploratory analysis of correlations does), the rotation gives
 the transformation M, and
 
@@ -25,7 +25,7 @@ F(T, theta) = 0 (``rotation.stationarity``, with unit-length columns of T for ob
 orthogonal rotations), so by implicit differentiation dT/dtheta = -F_T^-1 F_theta; the partial
 derivatives F_T, F_theta and those of the rotated quantities in theta and T are central
 differences of these smooth, explicit functions (step 1e-6).  This is the delta method for
-rotated loadings of Jennrich (1973), as Asparouhov & Muthen (2009) apply it to a model's blocks.
+rotated loadings of Jennrich (1973), as Asparouhov & Muthén (2009) apply it to a model's blocks.
 """
 
 from __future__ import annotations

@@ -9,7 +9,7 @@ and (k, l) (Pearson & Filon 1898; Olkin & Siotani 1976),
       - r_ij (r_ik r_il + r_jk r_jl) - r_kl (r_ik r_jk + r_il r_jl),
 
 which for one pair is (1 - r^2)^2.  Ordinal items: polychoric correlations and their
-asymptotic covariance from ``cfa_tool.data.polychoric`` (Olsson 1979; Muthen 1984).
+asymptotic covariance from ``cfa_tool.data.polychoric`` (Olsson 1979; Muthén 1984).
 Pairs are in ``numpy.tril_indices(p, -1)`` order throughout.
 """
 

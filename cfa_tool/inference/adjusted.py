@@ -6,7 +6,7 @@ asymptotic covariance of sqrt(N)(s - sigma):
 * robust (sandwich) covariance of the estimates: (D'WD)^-1 D'W Gamma W D (D'WD)^-1 / N;
 * U = W - W D (D'W D)^-1 D' W (Satorra 1989), and the statistic N F, distributed as z'U z with
   z ~ N(0, Gamma), adjusted for its mean and variance (Satorra & Bentler 1994) or in the
-  scale-shifted form of Asparouhov & Muthen (2010);
+  scale-shifted form of Asparouhov & Muthén (2010);
 * fit indices of the scale-shifted statistic against the baseline's (:func:`adjusted_fit`).
 """
 
@@ -111,13 +111,13 @@ def adjusted_statistics(statistic: float, df: float, U: np.ndarray, gamma: np.nd
     """The adjustments of a statistic whose asymptotic distribution is that of z' U z with z ~ N(0, Gamma).
 
     Also serves the difference of two nested fits, with U = U_restricted - U_general evaluated at
-    the restricted estimates (Satorra 2000; Asparouhov & Muthen 2006)."""
+    the restricted estimates (Satorra 2000; Asparouhov & Muthén 2006)."""
     UG = U @ gamma
     return adjusted_from_traces(statistic, df, float(np.trace(UG)), float(np.sum(UG * UG.T)))
 
 
 def adjusted_from_traces(statistic: float, df: float, a1: float, a2: float) -> AdjustedTest:
-    """The adjustments from a1 = tr(U Gamma) and a2 = tr((U Gamma)^2) (Satorra & Bentler 1994; Asparouhov & Muthen 2010)."""
+    """The adjustments from a1 = tr(U Gamma) and a2 = tr((U Gamma)^2) (Satorra & Bentler 1994; Asparouhov & Muthén 2010)."""
     if df <= 0 or a1 <= 0 or a2 <= 0:  # a saturated model has nothing to test
         nan = float("nan")
         return AdjustedTest(statistic, df, statistic, nan, statistic, nan, nan, nan)

@@ -4,7 +4,7 @@ For casewise contributions s_i (scores, or moment contributions centred at their
 and weights w_i that sum to N, the covariance of the weighted mean of the s_i is estimated as
 (1/N) times
 
-* sum_i w_i^2 s_i s_i'  with sampling weights (Muthen & Satorra 1995; Asparouhov 2005);
+* sum_i w_i^2 s_i s_i'  with sampling weights (Muthén & Satorra 1995; Asparouhov 2005);
 * sum_i w_i s_i s_i'    with frequency weights (a row of weight w stands for w independent rows);
 * sum_h C_h/(C_h - 1) sum_{c in h} (z_c - zbar_h)(z_c - zbar_h)',  z_c = sum_{i in c} w_i s_i,
   with clusters c in strata h (one stratum when none is given; each row its own cluster when
@@ -115,7 +115,7 @@ def groups_meat(contributions: list[np.ndarray], designs: list) -> GroupsMeat:
 
 def moment_contributions(rows: np.ndarray, design, with_means: bool) -> np.ndarray:
     """Each row's contribution to the weighted means (when ``with_means``) and vech of the weighted covariance,
-    centred at their weighted mean (Browne 1984; Muthen & Satorra 1995)."""
+    centred at their weighted mean (Browne 1984; Muthén & Satorra 1995)."""
     w = np.ones(len(rows)) if design is None else design.weights
     Z = rows - w @ rows / w.sum()
     J, I = np.triu_indices(rows.shape[1])  # vech order: lower triangle, column by column
@@ -127,14 +127,14 @@ def moment_contributions(rows: np.ndarray, design, with_means: bool) -> np.ndarr
 
 def moment_covariance(rows: np.ndarray, design, with_means: bool) -> np.ndarray:
     """Gamma: the asymptotic covariance of sqrt(N)(s - sigma) under the design, s the weighted means and
-    vech of the weighted covariance (Browne 1984 without a design; Muthen & Satorra 1995 with one)."""
+    vech of the weighted covariance (Browne 1984 without a design; Muthén & Satorra 1995 with one)."""
     return design_meat(moment_contributions(rows, design, with_means), design)
 
 
 def ordinal_design_covariance(moments):
     """``moments`` (OrdinalMoments estimated under a sampling design, carrying their rows' influence
     functions) with the asymptotic covariance of the thresholds and correlations under that design:
-    Gamma = the design-based meat of the rows' influence functions (Muthen & Satorra 1995; Asparouhov
+    Gamma = the design-based meat of the rows' influence functions (Muthén & Satorra 1995; Asparouhov
     2005; the linearization estimator over clusters within strata, Binder 1983).  Under clusters or strata
     the moments also carry the statistics' variances with the rows taken as independent (sampling weights
     applied), from which the diagonal least-squares weights come: clusters and strata then change the

@@ -47,7 +47,7 @@ class RobustFit:
     tli_robust: float
     rmsea_robust: float
     rmsea_robust_ci90: tuple[float, float]
-    # the scale-shifted form (Asparouhov & Muthen 2010): statistic = scale * chi-square + shift (None otherwise)
+    # the scale-shifted form (Asparouhov & Muthén 2010): statistic = scale * chi-square + shift (None otherwise)
     scale: float | None = None
     shift: float | None = None
 

@@ -202,7 +202,7 @@ DEFAULT_BLOCK_ROTATION = "geomin"
 class ExploratoryBlock:
     """``exploratory factors F1, F2 from item1..item9 rotated by geomin``: factors whose loadings on every
     item of the block are estimated and then rotated (exploratory structural equation modelling, Asparouhov &
-    Muthen 2009).  ``near zero F1: item4, item5`` lines give a target rotation its targeted zeros.
+    Muthén 2009).  ``near zero F1: item4, item5`` lines give a target rotation its targeted zeros.
 
     The parser writes the block's identification into the model as ordinary statements: each factor
     loads on every item of the block, its variance is 1, the block's factors are uncorrelated, and the

@@ -271,7 +271,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     column): the case diagnostics name their rows by it beside the data-row number; without it, a
     row-name column of the file (a first column without a name in the header) does.
     ``weights``: a column of sampling weights (rescaled to sum to the number of rows; pseudo-maximum
-    likelihood, Muthen & Satorra 1995, and the weighted full-information likelihood, Asparouhov 2005),
+    likelihood, Muthén & Satorra 1995, and the weighted full-information likelihood, Asparouhov 2005),
     or of frequency weights with ``weight_kind='frequency'`` (each row counted as often as its weight);
     ``cluster``: a column naming each row's cluster (cluster-robust standard errors and test);
     ``strata``: a column naming each row's stratum (clusters nested in strata).  Sampling weights and
@@ -640,7 +640,7 @@ def _labelled(frame: pd.DataFrame, group: str | None) -> pd.DataFrame:
 
 def design_test(fit_options, design: DesignColumns):
     """Under sampling weights or clusters the standard errors are sandwich ones and the test a scaled one
-    (Muthen & Satorra 1995; Asparouhov 2005): the robust test of the estimator replaces the normal-theory one."""
+    (Muthén & Satorra 1995; Asparouhov 2005): the robust test of the estimator replaces the normal-theory one."""
     if not design.robust:
         return fit_options
     if fit_options.information is not None:

@@ -426,7 +426,7 @@ def ordinal_difference(restricted: OrdinalEstimation, general: OrdinalEstimation
     """Adjusted difference test of two nested ordinal fits with the same weights.
 
     T_d = N (F_0 - F_1), adjusted with U_d = U_0 - U_1, both evaluated at the restricted
-    estimates (Satorra 2000; Asparouhov & Muthen 2006).  ``general_derivatives``: the general
+    estimates (Satorra 2000; Asparouhov & Muthén 2006).  ``general_derivatives``: the general
     model's derivatives there, with the statistics in the restricted model's order; by default
     the general model's parameters are found from the restricted model's matrix entries, which
     the two share when they differ only in constraints (the invariance ladder)."""

@@ -36,7 +36,7 @@ def header_lines(result) -> list[str]:
              + (f", {T.selection_phrase(fit.data)}" if fit.data.row_filters else ""),
              f"Reference group: {result.reference_group}; {result.reference_mean.phrase}",
              f"Configural model (every factor's mean 0 and variance 1 in every group), {fit.estimator}: {_fit_words(fit)}",
-             f"Alignment (Asparouhov & Muthen 2014): total simplicity loss f(x) = sqrt(sqrt(x^2 + {EPSILON:g})) over every "
+             f"Alignment (Asparouhov & Muthén 2014): total simplicity loss f(x) = sqrt(sqrt(x^2 + {EPSILON:g})) over every "
              f"pair of groups, weighted by sqrt(N1 N2), for every loading and intercept",
              f"Standard errors: {STANDARD_ERRORS}",
              f"Non-invariant loadings and intercepts: {_percent(result.noninvariant_share)} of all, flagged at level "
@@ -96,7 +96,7 @@ def item_table(result, k: int) -> ReportTable:
                   "Share: the item's share of non-invariant values over groups and both parameters; rows above "
                   f"{_percent(CAUTION_SHARE)} are marked. Loading and Intercept: the average aligned value in the groups "
                   "where the parameter is invariant. Differs in: the groups flagged, by pairwise Wald tests and tests "
-                  "against the invariant groups' average (after Asparouhov & Muthen 2014).", flagged=tuple(flagged))
+                  "against the invariant groups' average (after Asparouhov & Muthén 2014).", flagged=tuple(flagged))
 
 
 def _groups(names: tuple[str, ...]) -> str:

@@ -206,7 +206,7 @@ def _keyed_markers(scales) -> str:
 
 
 def _block_sentences(result, d) -> str:
-    """What an exploratory block is and how it was fitted and rotated (Asparouhov & Muthen 2009)."""
+    """What an exploratory block is and how it was fitted and rotated (Asparouhov & Muthén 2009)."""
     rotated = {b.factors: b for b in getattr(result, "exploratory", ())}
     out = []
     for factors, items, rotation in d.exploratory:
@@ -216,7 +216,7 @@ def _block_sentences(result, d) -> str:
             if rotation == "target" else ""
         opening = (f"The loadings of {_list(list(factors))} on every one of {_count(len(items), 'item')} "
                    f"({_list(list(items))}) were estimated as an exploratory block (exploratory structural equation "
-                   f"modelling; Asparouhov & Muthen, 2009): ")
+                   f"modelling; Asparouhov & Muthén, 2009): ")
         if len(factors) == 1:
             out.append(opening + "one factor, with its variance fixed to 1 (one factor: no rotation); its loadings are "
                                  "reported standardized by the items' model-implied standard deviations.")

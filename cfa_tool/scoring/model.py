@@ -9,7 +9,7 @@ The covariance of the items with every factor is L Phi, which is all the linear
 scores need.
 
 Ordinal items add thresholds on the latent-response metric: item j is answered in
-category c when tau_j,c-1 < x*_j <= tau_j,c with x* = nu + L eta + e (Muthen 1984).
+category c when tau_j,c-1 < x*_j <= tau_j,c with x* = nu + L eta + e (Muthén 1984).
 """
 
 from __future__ import annotations

@@ -5,7 +5,7 @@ answers are independent given the factors, with
 
     P(y_j = c | eta) = Phi((tau_j,c - nu_j - l_j'eta) / s_j) - Phi((tau_j,c-1 - nu_j - l_j'eta) / s_j),
 
-s_j^2 the latent response's residual variance (Muthen 1984), and a continuous item beside them
+s_j^2 the latent response's residual variance (Muthén 1984), and a continuous item beside them
 contributing its normal density.  A row's EAP score is the posterior mean E[eta | y] under the
 normal prior N(alpha, Phi) (Bock & Aitkin 1981; Bock & Mislevy 1982), with the posterior
 standard deviation as its standard error; unanswered items drop out of the product.

@@ -1,4 +1,4 @@
-"""Invariance across many groups by the alignment method (Asparouhov & Muthen 2014).
+"""Invariance across many groups by the alignment method (Asparouhov & Muthén 2014).
 
 Start from the configural model, fitted in every group with each factor's mean 0 and variance 1, whose
 loadings lambda0 and intercepts nu0 are free in every group.  Any group factor mean alpha_g and variance
@@ -6,7 +6,7 @@ psi_g give the same fit, with aligned parameters
 
     lambda_gi = lambda0_gi / sqrt(psi_g),        nu_gi = nu0_gi - alpha_g lambda0_gi / sqrt(psi_g)
 
-(Asparouhov & Muthen 2014, eq. 6-7).  Alignment chooses the alpha_g and psi_g that minimise the total
+(Asparouhov & Muthén 2014, eq. 6-7).  Alignment chooses the alpha_g and psi_g that minimise the total
 simplicity loss over all pairs of groups, for every item's loading and intercept,
 
     F = sum_i sum_{g<h} w_gh f(lambda_gi - lambda_hi) + sum_i sum_{g<h} w_gh f(nu_gi - nu_hi),
@@ -34,7 +34,7 @@ new set, until the set no longer changes.  The groups outside the final set are 
 parameter.  More than about 25% non-invariant parameters makes the aligned means doubtful (the authors'
 rule of thumb, recalled).  The trustworthiness check simulates data from the aligned solution (which
 implies the configural model's moments), refits and realigns them, and reports the correlation of the
-true and estimated group means, which the authors want at .98 or above (Muthen & Asparouhov 2014; a rule
+true and estimated group means, which the authors want at .98 or above (Muthén & Asparouhov 2014; a rule
 of thumb, recalled).
 """
 
@@ -54,12 +54,12 @@ from cfa_tool.method import ALIGNMENT_FLAG_LEVEL, ALIGNMENT_TRIALS, ReferenceMea
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 
-#: the constant of the component loss function (Asparouhov & Muthen 2014)
+#: the constant of the component loss function (Asparouhov & Muthén 2014)
 EPSILON = 0.01
 #: more non-invariant loadings and intercepts than this share: the aligned means are doubtful (Asparouhov &
-#: Muthen 2014, their rule of thumb, recalled)
+#: Muthén 2014, their rule of thumb, recalled)
 CAUTION_SHARE = 0.25
-#: the correlation of true and estimated means the Monte Carlo check should reach (Muthen & Asparouhov 2014,
+#: the correlation of true and estimated means the Monte Carlo check should reach (Muthén & Asparouhov 2014,
 #: a rule of thumb, recalled)
 TRUSTED_CORRELATION = 0.98
 #: a Hessian of the loss whose smallest eigenvalue is below this share of its largest: the group means and
@@ -72,7 +72,7 @@ FLAT_MINIMUM = 1e-7
 
 
 def simplicity_loss(x: np.ndarray, epsilon: float = EPSILON) -> np.ndarray:
-    """f(x) = sqrt(sqrt(x^2 + eps)) (Asparouhov & Muthen 2014, eq. 10)."""
+    """f(x) = sqrt(sqrt(x^2 + eps)) (Asparouhov & Muthén 2014, eq. 10)."""
     return np.sqrt(np.sqrt(x * x + epsilon))
 
 
@@ -110,7 +110,7 @@ class FactorProblem:
 
     @cached_property
     def weights(self) -> np.ndarray:
-        """sqrt(N_g N_h) with a zero diagonal (Asparouhov & Muthen 2014, eq. 9)."""
+        """sqrt(N_g N_h) with a zero diagonal (Asparouhov & Muthén 2014, eq. 9)."""
         n = np.asarray(self.sizes, dtype=float)
         w = np.sqrt(np.outer(n, n))
         np.fill_diagonal(w, 0.0)
@@ -362,7 +362,7 @@ def _two_sided_p(z: np.ndarray) -> np.ndarray:
 
 def invariant_set(values: np.ndarray, covariance: np.ndarray, level: float, max_rounds: int = 100) -> np.ndarray:
     """The groups (a boolean mask) whose aligned value of one parameter agrees, by the multiple pairwise test
-    procedure (Asparouhov & Muthen 2014, as recalled): Wald tests of every pair at ``level``; a starting set
+    procedure (Asparouhov & Muthén 2014, as recalled): Wald tests of every pair at ``level``; a starting set
     grown greedily from the group that agrees with most others, adding groups that agree with every member;
     then, until the set repeats, the new set is every group whose value does not differ from the set's
     average (the test's variance from the full covariance of the values)."""
@@ -548,7 +548,7 @@ class AlignmentResult(Presentable):
         return {
             "warnings": list(self.warnings),
             "notes": list(self.notes),
-            "method": "alignment (Asparouhov & Muthen 2014)",
+            "method": "alignment (Asparouhov & Muthén 2014)",
             "group_column": self.group_column,
             "groups": [{"group": g, "rows": n} for g, n in zip(self.groups, self.sizes)],
             "reference_group": self.reference_group,
@@ -568,7 +568,7 @@ STANDARD_ERRORS = ("delta method from the covariance of the configural estimates
                    "of the alignment's minimum (the loss's Hessian and cross-derivatives)")
 FLAGGING = ("pairwise Wald tests of the aligned values at the level given, a starting set of groups that agree pairwise, "
             "then repeated tests of each group against the set's average until the set no longer changes "
-            "(after Asparouhov & Muthen 2014)")
+            "(after Asparouhov & Muthén 2014)")
 
 
 # ---------------------------------------------------------------------------------------------------
@@ -590,7 +590,7 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
           trials: int = ALIGNMENT_TRIALS, seed: int = 1, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
           keep: tuple[str, ...] | list[str] = (), missing: str | None = None,
           max_iterations: int = 500) -> AlignmentResult:
-    """Group factor means and variances under approximate invariance by alignment (Asparouhov & Muthen 2014),
+    """Group factor means and variances under approximate invariance by alignment (Asparouhov & Muthén 2014),
     from the configural model fitted with every factor's mean 0 and variance 1 in every group.
 
     ``reference_mean``: 'zero' (the reference group's means 0, variances 1) or 'estimated' (its means free too);
@@ -910,7 +910,7 @@ def _cautions(result: AlignmentResult) -> list[str]:
         if share > CAUTION_SHARE:
             out.append(f"{100 * share:.0f}% of the loadings and intercepts of {f.factor} are flagged as non-invariant, "
                        f"more than about {100 * CAUTION_SHARE:.0f}%, the share up to which the method's authors found "
-                       f"aligned means trustworthy (Asparouhov & Muthen 2014, their rule of thumb): read its aligned "
+                       f"aligned means trustworthy (Asparouhov & Muthén 2014, their rule of thumb): read its aligned "
                        f"means with caution and weigh the Monte Carlo check")
     if result.check is not None:
         for c in result.check.factors:

@@ -1,7 +1,7 @@
 """Measurement invariance across groups: the configural-metric-scalar-strict
 ladder (Meredith 1993; Vandenberg & Lance 2000), each step tested against the
 one before, with an optional search for partial invariance (Byrne,
-Shavelson & Muthen 1989) guided by score tests of the step's equality
+Shavelson & Muthén 1989) guided by score tests of the step's equality
 constraints.
 
 Change in CFI is read against the -.01 guide of Cheung & Rensvold (2002) and
@@ -433,7 +433,7 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[
     rows = {(r.kind, r.variables, r.group): r for r in result.estimates if r.kind in ("mean", "factor_variance")}
     reference = labels[0]
     # a factor's means are comparable when at least two of its items keep equal loadings and intercepts
-    # (Byrne, Shavelson & Muthen 1989); with fewer, its scalar equality is not tested at all
+    # (Byrne, Shavelson & Muthén 1989); with fewer, its scalar equality is not tested at all
     freed = [f for s in steps if s.level in ("thresholds", "metric", "scalar") for f in s.freed]
     declared = scalar.declared  # the model file's exemptions in force at the scalar step
     items_of: dict[str, set[str]] = {}
@@ -477,7 +477,7 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[
                                         bool(through)))
     withheld = (f" None for {', '.join(too_few)}: fewer than two of its items keep equal loadings and intercepts "
                 f"across groups, so the equality that makes its means comparable is not tested (Byrne, Shavelson & "
-                f"Muthen 1989)." if too_few else "")
+                f"Muthén 1989)." if too_few else "")
     lower = [f for f in result.latent if f in higher and f not in too_few]
     if lower:
         withheld += (f" {_capital_first(', '.join(lower))} {'are' if len(lower) > 1 else 'is'} explained by a "

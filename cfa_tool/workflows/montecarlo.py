@@ -3,7 +3,7 @@
 For each free parameter: mean estimate and relative bias against the
 population value, the spread of the estimates beside the mean standard error,
 coverage of the 95% Wald interval, and power (share of replications with
-p < alpha); plus the convergence rate (Muthen & Muthen 2002).
+p < alpha); plus the convergence rate (Muthén & Muthén 2002).
 """
 
 from __future__ import annotations

@@ -7,7 +7,7 @@ continuous items (Bentler & Satorra 2010): the general model is fitted to the
 restricted model's implied thresholds and correlations and must reproduce them.
 The difference of the two statistics is adjusted for its mean and variance with
 U_d = U_restricted - U_general, both at the restricted estimates (Satorra 2000;
-Asparouhov & Muthen 2006).
+Asparouhov & Muthén 2006).
 """
 
 from __future__ import annotations

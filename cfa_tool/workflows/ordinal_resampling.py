@@ -5,7 +5,7 @@ Every sample, a bootstrap resample of the rows or a sample simulated from a popu
 thresholds and polychoric correlations (two-step, Olsson 1979; :mod:`cfa_tool.data.polychoric`) and is refitted
 by the fit's own least-squares estimator with its robust standard errors and scale-shifted adjusted test
 (:func:`cfa_tool.pipeline.ordinal.fit_ordinal`).  Simulated ordinal answers are latent responses drawn from the
-model-implied correlation matrix and cut at the thresholds (the latent-response formulation; Muthen 1984).
+model-implied correlation matrix and cut at the thresholds (the latent-response formulation; Muthén 1984).
 A sample whose answers cannot be analysed (an item left with one category, or, in a bootstrap resample, an
 answer category of the data that no resampled row gives, so that its thresholds would not match the fit's) is
 counted as failed, apart from the fits that did not converge; neither is dropped silently.

@@ -21,7 +21,7 @@ Ordinal items (and continuous items beside them) are fitted as ``fit`` fits them
 polychoric (polyserial, Pearson) correlations.  The tight check then compares the validation
 sample's correlations r with those the calibration estimates imply, rho: N (r - rho)' W (r - rho)
 with the validation sample's weights W, adjusted for its mean and variance with the validation
-sample's Gamma (no parameter is estimated: U = W; Satorra 1989; Asparouhov & Muthen 2010 for the
+sample's Gamma (no parameter is estimated: U = W; Satorra 1989; Asparouhov & Muthén 2010 for the
 scale shift), df = p(p-1)/2; the cross-validation index is the same least-squares discrepancy
 (Cudeck & Browne 1983 define it for any discrepancy function), beside that of the calibration
 sample's own correlations.  Every chi-square of such a replication is the scale-shifted one.

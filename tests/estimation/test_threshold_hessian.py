@@ -8,7 +8,7 @@
   differences of the discrepancy in test_objective_contract.py), away from the minimum where the
   residual term matters, and differs there from the Gauss-Newton information 2 D'WD;
 * against an implementation the project did not write: each group's configural fit is the diagonally
-  weighted least-squares problem of Muthen, du Toit & Spisic (1997) on that group's thresholds and
+  weighted least-squares problem of Muthén, du Toit & Spisic (1997) on that group's thresholds and
   polychoric correlations, written out below independently of the package (Sigma = L Phi L' + I, the
   marker loading 1, thresholds tau / sqrt(Sigma_jj)) and minimised by scipy.optimize.minimize (BFGS);
   the minimum and the estimates must agree with the package's two-group fit;

@@ -300,7 +300,7 @@ TWO_BLOCKS = ("exploratory factors a1, a2 from y1, y4, y2, y3, y5\n"
 
 
 def test_correlations_between_two_blocks_are_reported_with_delta_method_errors():
-    """Block a's rotated factors with block b's: cov(a*, b*) = Ma^-1 cov(a, b) Mb^-1' (Asparouhov & Muthen 2009),
+    """Block a's rotated factors with block b's: cov(a*, b*) = Ma^-1 cov(a, b) Mb^-1' (Asparouhov & Muthén 2009),
     recomputed here from the fitted matrices with each block rotated afresh by explore's rotation, and its
     SEs by central differences of that whole computation (step 1e-4) against the reported delta method."""
     data = _two_blocks_data()

@@ -1,5 +1,5 @@
 """Ordinal items under a sampling design: weighted thresholds and polychoric (polyserial, Pearson)
-correlations as pseudo-maximum-likelihood estimates (Muthen & Satorra 1995; Asparouhov 2005), with the
+correlations as pseudo-maximum-likelihood estimates (Muthén & Satorra 1995; Asparouhov 2005), with the
 design-based covariance of their influence functions (per-cluster sums within strata), then the usual
 least-squares fit with robust standard errors and adjusted tests."""
 
@@ -51,7 +51,7 @@ def survey():
 
 def test_weighted_thresholds_are_normal_quantiles_of_weighted_proportions(survey):
     # tau_c = Phi^-1 of the weighted share of answers at or below c (the pseudo-ML threshold of a probit with
-    # no predictors; Muthen & Satorra 1995): checked against numpy's weighted average and scipy.stats.norm.ppf.
+    # no predictors; Muthén & Satorra 1995): checked against numpy's weighted average and scipy.stats.norm.ppf.
     moments = ordinal_moments(survey, tuple(ITEMS), "<test>", design=design_columns("w"))
     w = survey["w"].to_numpy()
     for k, item in enumerate(ITEMS):

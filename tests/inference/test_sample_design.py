@@ -1,4 +1,4 @@
-"""Sampling weights, clusters and strata: pseudo-maximum likelihood (Muthen & Satorra 1995), the weighted
+"""Sampling weights, clusters and strata: pseudo-maximum likelihood (Muthén & Satorra 1995), the weighted
 full-information likelihood (Asparouhov 2005) and cluster-robust sandwich standard errors."""
 
 from __future__ import annotations
@@ -38,7 +38,7 @@ def with_gaps(hs_data):
 # -- weights all equal: the unweighted estimates --------------------------------------------------------------------
 
 def test_equal_sampling_weights_give_the_unweighted_fit(hs_data):
-    # Sampling weights are rescaled to sum to N (Muthen & Satorra 1995), so a constant weight changes nothing:
+    # Sampling weights are rescaled to sum to N (Muthén & Satorra 1995), so a constant weight changes nothing:
     # the estimates are the ML ones and the sandwich errors and scaled test those of the unweighted data.
     plain = cfa_tool.fit(THREE_FACTORS, hs_data, test="satorra-bentler")
     weighted = cfa_tool.fit(THREE_FACTORS, hs_data.assign(w=2.0), weights="w")

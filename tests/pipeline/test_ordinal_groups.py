@@ -199,7 +199,7 @@ def test_command_line_invariance_with_ordinal_items(tmp_path):
     steps = json.loads(out.read_text())["steps"]
     assert [s["level"] for s in steps] == ["configural", "thresholds", "metric", "scalar", "strict"]
     assert steps[2]["robust"]["chi_square_scaled"] > 0
-    assert "Asparouhov & Muthen 2006" in steps[2]["versus_previous"]["method"]
+    assert "Asparouhov & Muthén 2006" in steps[2]["versus_previous"]["method"]
     fitted = tmp_path / "fit.json"
     assert main(["fit", str(model), "--data", str(data), "--group-column", "site", "--ordinal", "all", "--json", str(fitted)]) == 0
     kinds = {e["kind"] for e in json.loads(fitted.read_text())["estimates"]}

@@ -144,7 +144,7 @@ def test_a_continuous_item_constant_in_one_group_is_named():
 def _posterior_mean(row: pd.Series, values: dict, group: str, items: tuple[str, ...]) -> float:
     """E[eta | answers] of a one-factor model by scipy.integrate.quad over the normal prior times the answers'
     probabilities: ordinal items by their categories on the latent-response scale, continuous items by their
-    normal densities (Muthen 1984; Bock & Aitkin 1981)."""
+    normal densities (Muthén 1984; Bock & Aitkin 1981)."""
     from scipy import integrate
     from scipy.special import ndtr
     from scipy.stats import norm

@@ -1,6 +1,6 @@
 """compare's methods paragraph describes exactly the models compared (each one's factors and departures from simple
 structure), the estimator and rows, the difference test used with its authors (Steiger, Shapiro & Browne 1985;
-Satorra & Bentler 2001, 2010; Satorra 2000 and Asparouhov & Muthen 2006 for ordinal items), its figures, and a
+Satorra & Bentler 2001, 2010; Satorra 2000 and Asparouhov & Muthén 2006 for ordinal items), its figures, and a
 restricted model on the boundary (Self & Liang 1987), for complete rows, full-information and ordinal comparisons."""
 
 from __future__ import annotations
@@ -80,9 +80,9 @@ def test_ordinal_comparisons_name_the_adjusted_difference(data):
     cut = data.apply(lambda column: pd.cut(column, [-np.inf, -0.5, 0.5, np.inf], labels=False) + 1)
     text = comparison_paragraph(compare([ONE, TWO], cut, ordinal="all"))
     assert "diagonally weighted least squares on polychoric correlations of the ordinal items" in text
-    assert f"the {ADJUSTED_TEST} chi-square difference test (Satorra, 2000; Asparouhov & Muthen, 2006)" in text
+    assert f"the {ADJUSTED_TEST} chi-square difference test (Satorra, 2000; Asparouhov & Muthén, 2006)" in text
     assert "reproduces the restricted model's implied thresholds and correlations" in text
-    assert f"Fit (the {ADJUSTED_TEST} (Asparouhov & Muthen 2010) statistic and robust indices)" in text
+    assert f"Fit (the {ADJUSTED_TEST} (Asparouhov & Muthén 2010) statistic and robust indices)" in text
     # changes in the adjusted indices are not comparable across models (as invariance refuses to judge steps by them):
     # no figures and no guide sentence, the reason in their place, in the paragraph, the report and the JSON
     assert "\u0394CFI" not in text and "Cheung & Rensvold" not in text

@@ -86,7 +86,7 @@ def test_ordinal_comparison_names_the_adjusted_test_and_its_pieces_as_fit_does()
     compare_row = next(row for row in table.rows if row[0].strip() == alone.robust.test.correction)
     assert fit_row[0].strip() == compare_row[0].strip() == "scale and shift"
     assert compare_row[2] == fit_row[1]  # the second model's column: the same scale and shift as its own fit
-    # the pieces make the statistic: T* = scale x T + shift (Asparouhov & Muthen 2010)
+    # the pieces make the statistic: T* = scale x T + shift (Asparouhov & Muthén 2010)
     r = comparison.results[1]
     assert r.fit.chi_square * r.robust.scale + r.robust.shift == pytest.approx(r.robust.chi_square_scaled, rel=1e-12)
     text = _text(comparison)
@@ -95,7 +95,7 @@ def test_ordinal_comparison_names_the_adjusted_test_and_its_pieces_as_fit_does()
     assert "Scale" in str(values) and "Shift" in str(values) and "Scaling factor" not in str(values)
     # the difference test carries the same name as the fit's test, with the authors of the difference version
     test_name = comparison.tests[0].method.value
-    assert test_name.startswith(alone.robust.test.label.split(" (")[0]) and "Asparouhov & Muthen 2006" in test_name
+    assert test_name.startswith(alone.robust.test.label.split(" (")[0]) and "Asparouhov & Muthén 2006" in test_name
 
 
 def test_robust_figures_come_first_and_each_number_keeps_its_label(hs_data):

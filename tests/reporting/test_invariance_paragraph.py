@@ -73,7 +73,7 @@ def test_ordinal_ladders_name_thresholds_first_and_the_adjusted_difference(ordin
     assert "configural, thresholds (thresholds equal across groups), metric (thresholds and loadings equal" in text
     assert "thresholds before loadings as Wu & Estabrook (2016) set out" in text
     assert "Threshold invariance" in text and "Thresholds invariance" not in text
-    assert "(Satorra, 2000; Asparouhov & Muthen, 2006)" in text
+    assert "(Satorra, 2000; Asparouhov & Muthén, 2006)" in text
     assert "\u0394CFI" not in text and "change-in-fit guides" not in text
 
 

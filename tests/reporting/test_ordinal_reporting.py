@@ -107,7 +107,7 @@ def test_the_json_names_the_pieces_of_the_scale_shifted_statistic_and_older_file
 
     result, _ = ordinal_fit
     out = result.to_dict()["robust"]
-    # statistic = scale x chi-square + shift (Asparouhov & Muthen 2010): the pieces, and the mean-adjusted scaling
+    # statistic = scale x chi-square + shift (Asparouhov & Muthén 2010): the pieces, and the mean-adjusted scaling
     # tr(U Gamma) / df under its own name, not as a scaling factor of this statistic
     assert result.fit.chi_square * out["scale"] + out["shift"] == pytest.approx(out["chi_square_scaled"], rel=1e-12)
     assert "scaling_factor" not in out and "baseline_scaling_factor" not in out

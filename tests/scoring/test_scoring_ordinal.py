@@ -2,7 +2,7 @@
 
 References: the posterior mean written as an integral and evaluated by scipy.integrate.quad /
 dblquad (general-purpose adaptive quadrature, QUADPACK) with the category probabilities of the
-latent-response model (Muthen 1984); with continuous (normal) answers the posterior is normal and its
+latent-response model (Muthén 1984); with continuous (normal) answers the posterior is normal and its
 mean and standard deviation are those of the linear regression scores (Thurstone 1935), computed by
 the separate linear path; with many categories the EAP scores approach the scores of the continuous
 latent responses (the discretisation vanishes); over a population the EAP scores average to the factor

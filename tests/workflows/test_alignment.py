@@ -1,6 +1,6 @@
 """Alignment across many groups (cfa_tool.workflows.alignment), checked against things this project did not write:
 finite differences of the loss, a direct scipy.optimize minimisation of a loss written out here from the paper's
-formula (Asparouhov & Muthen 2014, eq. 8-10), the implicit derivative against re-minimising with scipy, data
+formula (Asparouhov & Muthén 2014, eq. 8-10), the implicit derivative against re-minimising with scipy, data
 simulated with known group means (a fixed seed), and the scalar model's latent means under exact invariance."""
 
 from __future__ import annotations
@@ -73,7 +73,7 @@ def _random_problem(seed: int, free: bool = False, groups: int = 6, items: int =
 def test_component_loss_and_its_derivatives_against_finite_differences():
     x = np.linspace(-2, 2, 41)
     h = 1e-6
-    # f(x) = (x^2 + .01)^(1/4) (Asparouhov & Muthen 2014, eq. 10): f(0) = .01^(1/4) = .3162...
+    # f(x) = (x^2 + .01)^(1/4) (Asparouhov & Muthén 2014, eq. 10): f(0) = .01^(1/4) = .3162...
     assert simplicity_loss(np.array(0.0)) == pytest.approx(0.01 ** 0.25, rel=1e-12)
     assert simplicity_slope(x) == pytest.approx((simplicity_loss(x + h) - simplicity_loss(x - h)) / (2 * h), abs=1e-7)
     assert simplicity_curvature(x) == pytest.approx((simplicity_slope(x + h) - simplicity_slope(x - h)) / (2 * h), abs=1e-6)
@@ -106,7 +106,7 @@ def test_gradient_hessian_and_cross_derivatives_against_finite_differences(free)
 
 
 def _loss_from_the_paper(loadings0, intercepts0, sizes, means, variances):
-    """F written out pair by pair (Asparouhov & Muthen 2014, eq. 8-10), independently of the module."""
+    """F written out pair by pair (Asparouhov & Muthén 2014, eq. 8-10), independently of the module."""
     total = 0.0
     G, I = loadings0.shape
     for i in range(I):
@@ -181,7 +181,7 @@ def test_aligned_means_recover_the_true_means_in_20_groups(noninvariant):
     result, means, variances = noninvariant
     factor = result.factors[0]
     estimated = np.array([g.mean for g in factor.groups])
-    # the issue's criterion: correlation of true and aligned means above .98 (Asparouhov & Muthen 2014 report such
+    # the issue's criterion: correlation of true and aligned means above .98 (Asparouhov & Muthén 2014 report such
     # recovery with a few non-invariant intercepts)
     assert np.corrcoef(estimated, means)[0, 1] > 0.98
     assert np.corrcoef([g.variance for g in factor.groups], variances)[0, 1] > 0.9
@@ -211,7 +211,7 @@ def test_monte_carlo_check_reports_the_correlation(noninvariant):
     check = result.check
     assert check.trials == 3 and check.completed == 3 and check.seed == 5
     # the aligned means of 20 groups of 400 rows with five shifted intercepts are trustworthy by the authors'
-    # rule of thumb (correlation of .98 or more; Muthen & Asparouhov 2014, recalled)
+    # rule of thumb (correlation of .98 or more; Muthén & Asparouhov 2014, recalled)
     assert check.factors[0].mean_correlation > 0.98 and check.factors[0].trusted
     assert check.factors[0].lowest_mean_correlation <= check.factors[0].mean_correlation
 
@@ -310,7 +310,7 @@ def test_a_group_whose_factor_came_out_reversed_is_turned_back():
 
 def test_a_flat_minimum_is_an_error_not_a_result():
     """Loadings exactly equal across groups leave an estimated reference mean undetermined: shifting every mean by c
-    moves every intercept by the same -lambda c (Asparouhov & Muthen 2014, the free alignment needs non-invariant
+    moves every intercept by the same -lambda c (Asparouhov & Muthén 2014, the free alignment needs non-invariant
     loadings)."""
     from cfa_tool.errors import EstimationError
     from cfa_tool.workflows.alignment import _factor_result
@@ -332,7 +332,7 @@ def test_much_non_invariance_gets_the_caution():
     data, _, _ = simulate(groups=10, rows=300, seed=43, shifted=shifts)
     result = cfa_tool.align(MODEL, data, "country", trials=0)
     assert result.noninvariant_share > 0.25
-    # the authors' rule of thumb (about 25% non-invariant parameters; Asparouhov & Muthen 2014, recalled)
+    # the authors' rule of thumb (about 25% non-invariant parameters; Asparouhov & Muthén 2014, recalled)
     assert any("more than about 25%" in w for w in result.warnings)
     assert "Caution: " in result.summary()
 

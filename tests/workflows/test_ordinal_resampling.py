@@ -2,7 +2,7 @@
 
 Check values: the normal distribution function (scipy.stats.norm) for the answer proportions that thresholds
 imply; the population correlations for the polychoric correlations of simulated answers; the fit's robust
-(sandwich) standard errors, an asymptotic formula (Muthen 1984; Satorra & Bentler 1994), for the bootstrap's
+(sandwich) standard errors, an asymptotic formula (Muthén 1984; Satorra & Bentler 1994), for the bootstrap's
 standard errors; the nominal level of a test for the rejection rate of the adjusted test under a true model;
 the earlier fit's own estimates for a population taken from its JSON (issue 19)."""
 

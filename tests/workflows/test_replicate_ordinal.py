@@ -7,7 +7,7 @@ the index as the discrepancy of the validation data from the calibration model);
 estimated the mean-and-variance adjustment has U = W, so for diagonal weights W = diag(Gamma)^-1 its
 trace tr(U Gamma) equals the number of correlations and tr((U Gamma)^2) is the sum of the squared
 entries of Gamma's correlation matrix, giving the scale-shifted statistic s T + df - s df with
-s = sqrt(df / tr((U Gamma)^2)) (the scale-shifted statistic of Asparouhov & Muthen 2010), computed here with numpy; the loose
+s = sqrt(df / tr((U Gamma)^2)) (the scale-shifted statistic of Asparouhov & Muthén 2010), computed here with numpy; the loose
 refit is the fit of ``fit`` on the validation data.
 """
 

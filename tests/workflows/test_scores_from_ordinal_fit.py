@@ -3,7 +3,7 @@
 Checks: the scores from the JSON equal those the same run computes from the fit itself on the same data
 (the JSON holds every parameter the scores need); the posterior mean of a new row, with the parameters as
 the JSON reports them, is the ratio of two integrals over the normal prior times the answers'
-probabilities (category probabilities of the latent-response model, Muthen 1984; normal densities for a
+probabilities (category probabilities of the latent-response model, Muthén 1984; normal densities for a
 continuous item; Bock & Aitkin 1981), evaluated by scipy.integrate.quad (QUADPACK) independently of the
 tool's quadrature.
 """
