@@ -137,19 +137,24 @@ def blank_text_as_missing(frame: pd.DataFrame, keep_text: tuple[str, ...] = (), 
     text, with ``decimal_comma``); ``keep_text`` (id columns) are left as written.  The frame is copied only when a
     cell changes."""
     out = frame
-    for position, column in enumerate(frame.columns):
-        series = frame.iloc[:, position]
-        if column in keep_text or not _text_dtype(series):
+    # the text columns found from the dtypes at once: taking every column out of the frame to look at its dtype cost
+    # more than a small fit (a data frame of 15 columns, one of them text)
+    text = [position for position, dtype in enumerate(frame.dtypes)
+            if dtype == object or isinstance(dtype, pd.StringDtype)]
+    for position in text:
+        column = frame.columns[position]
+        if column in keep_text:
             continue
-        if isinstance(series.dtype, pd.StringDtype):  # text only: compared at once
-            stripped = series.str.strip()
-            blank = ((stripped == "") | stripped.isin(markers)).fillna(False).to_numpy(dtype=bool)
-        else:
-            blank = np.fromiter((isinstance(v, str) and (not v.strip() or (bool(markers) and v.strip() in markers))
-                                 for v in series.to_numpy(dtype=object)), dtype=bool, count=len(series))
-        if not blank.any():
+        series = frame.iloc[:, position]
+        try:  # each distinct value judged once (a group column holds a few): pandas' string methods cost more
+            distinct = pd.unique(series).tolist()
+        except TypeError:  # unhashable cells (lists in an object column) are no text
+            distinct = [v for v in series.tolist() if isinstance(v, str)]
+        blanks = {v for v in distinct if isinstance(v, str) and (not v.strip() or (bool(markers) and v.strip() in markers))}
+        if not blanks:
             continue
         values = series.to_numpy(dtype=object, na_value=None)
+        blank = np.fromiter((isinstance(v, str) and v in blanks for v in values), dtype=bool, count=len(values))
         kept = series.where(~blank)
         rest = values[~blank & pd.notna(kept).to_numpy()]
         if all(isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, (bool, np.bool_))
