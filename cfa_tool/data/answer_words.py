@@ -14,6 +14,7 @@ import pandas as pd
 from dataclasses import replace
 
 from cfa_tool.data.moments import row_numbers
+from cfa_tool.input_files import base_name
 from cfa_tool.errors import DataError, Location, ModelError, OptionError, printable
 from cfa_tool.language.spec import AnswerCoding, AnswerWord, Name, Spec, answer_key
 from cfa_tool.numbers import number as strict_number
@@ -50,19 +51,31 @@ def _code_of(value: object, words: dict[str, float], numbers: dict[float, float]
 
 
 def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
-                      only: tuple[str, ...] | None = None) -> tuple[pd.DataFrame, list[str]]:
+                      only: tuple[str, ...] | None = None,
+                      missing_codes: tuple[float, ...] = ()) -> tuple[pd.DataFrame, list[str]]:
     """``frame`` with the items its 'answers' statements cover (of them, those in ``only`` when given) coded as
     numbers (a copy; the caller's frame is not changed), and one note per statement saying how the answers were
-    coded and, if so, which words share a code."""
+    coded and, if so, which words share a code.  ``missing_codes`` (--missing-codes) mean no answer in these items
+    too: a cell holding one (as a number or written as one, such as '-99' among words), or a word the statement
+    codes as one, is read as missing, and a note counts them."""
     codings = spec.answer_codings()
     if only is not None:
         codings = {x: c for x, c in codings.items() if x in only}
     if not codings:
         return frame, []
     frame = frame.copy()
+    no_answer = set(float(c) for c in missing_codes)
+    read_as_none: list[tuple[str, int]] = []
     for item, coding in codings.items():
         words, numbers = coding.codes_by_word(), coding.codes_by_number()
         column = frame[item]
+        if no_answer:  # cells holding a missing-value code, as numbers or as text
+            as_numbers = pd.to_numeric(column.map(lambda v: v.strip() if isinstance(v, str) else v), errors="coerce")
+            coded_missing = as_numbers.isin(no_answer).to_numpy(dtype=bool)
+            if coded_missing.any():
+                column = column.where(~coded_missing)
+        else:
+            coded_missing = np.zeros(len(column), dtype=bool)
         distinct = pd.unique(column.to_numpy(dtype=object))
         mapping: dict[object, float] = {}
         for value in distinct:
@@ -78,8 +91,23 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
                 raise _cell_error(source, item, column, value, wrong, coding, row_numbers(column))
             if value is not None and not (isinstance(value, float) and value != value) and value is not pd.NA:
                 mapping[value] = code
-        frame[item] = column.map(mapping).astype(float)
-    return frame, answer_notes(spec, tuple(codings))
+        coded = column.map(mapping).astype(float)
+        if no_answer:  # a word the statement codes as a missing-value code is no answer too
+            listed_missing = coded.isin(no_answer).to_numpy(dtype=bool)
+            coded = coded.where(~listed_missing)
+            count = int((coded_missing | listed_missing).sum())
+            if count:
+                read_as_none.append((item, count))
+        frame[item] = coded
+    notes = answer_notes(spec, tuple(codings))
+    if read_as_none:
+        total = sum(n for _, n in read_as_none)
+        given = ", ".join(f"{c:g}" for c in sorted(no_answer))
+        notes.append(f"{base_name(source)}: {total} {'cell' if total == 1 else 'cells'} of the items coded by an "
+                     f"'answers' statement held a code given with --missing-codes ({given}) and "
+                     f"{'was' if total == 1 else 'were'} read as no answer ("
+                     + ", ".join(f"{printable(x)} {n}" for x, n in read_as_none) + ")")
+    return frame, notes
 
 
 def _first_row(column: pd.Series, value: object, rows: np.ndarray) -> int:

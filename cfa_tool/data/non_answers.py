@@ -26,6 +26,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.errors import printable
+from cfa_tool.numbers import number
 from cfa_tool.input_files import base_name
 
 #: phrases that say a value is not an answer (compared after :func:`_plain`): one vocabulary for labels and cells
@@ -264,7 +265,12 @@ def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = ()) ->
         if column in keep_text or pd.api.types.is_numeric_dtype(series) or not (
                 series.dtype == object or pd.api.types.is_string_dtype(series)):
             continue
-        said = [v for v in series.dropna().unique() if isinstance(v, str) and says_no_answer(v)]  # distinct texts
+        distinct = [v for v in series.dropna().unique() if isinstance(v, str)]
+        said = [v for v in distinct if says_no_answer(v)]  # distinct texts
+        if said and any(number(v.strip()) is None for v in distinct if v not in said):
+            # a column of words (answers recorded as words, group labels): a middle answer such as 'Not sure' is
+            # one of its answers, never read as missing (an 'answers' statement codes it)
+            said = [v for v in said if _plain(v) not in MIDDLE_PHRASES]
         if not said:
             continue
         texts = series.isin(said).to_numpy(dtype=bool)

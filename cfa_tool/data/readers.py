@@ -215,7 +215,7 @@ def _missing_codes_note(path: Path, codes, read_as_none: list[tuple[str, int]]) 
     no cell holds any of the codes, as a mistyped code would leave it)."""
     given = ", ".join(f"{c:g}" if isinstance(c, (int, float)) else str(c) for c in codes)
     if not read_as_none:
-        return f"{path.name}: no cell holds any of the codes given with --missing-codes ({given})"
+        return f"{path.name}: no cell of numbers holds any of the codes given with --missing-codes ({given})"
     total = sum(n for _, n in read_as_none)
     shown = ", ".join(f"{column} {n}" for column, n in read_as_none[:8]) + (
         f" and {len(read_as_none) - 8} more columns" if len(read_as_none) > 8 else "")

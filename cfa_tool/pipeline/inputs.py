@@ -164,7 +164,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         notes += filter_notes
         cautions = kept_cautions(cautions, frame)
     check_columns(spec, columns, loaded.source, loaded.sheet_hint())
-    frame, coding_notes = code_answer_words(spec, frame, loaded.source)  # 'answers' statements: words as codes
+    frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
+                                            missing_codes=missing_codes_option(missing_codes))
     notes += coding_notes
     check_declared_ranges(spec, frame, loaded.source, loaded.value_labels)
     values = item_values(frame, spec.observed_names)  # taken out once: the screening, gaps and moments read it

@@ -224,3 +224,35 @@ def test_comparison_and_invariance_paragraphs_say_how_the_words_were_coded(files
     assert cfa_tool.fit(PLAIN, stats).converged  # the file is read without the statement
     with pytest.raises(ModelError, match="holds summary statistics, not answers; remove the statement"):
         cfa_tool.fit(MODEL, stats)
+
+
+def test_missing_codes_apply_to_items_coded_from_words(tmp_path):
+    # re-check 8: '-99' among the words, given with --missing-codes (and, as the error advised, listed in the
+    # statement) was analysed as an answer while the paragraph said it was treated as missing.  The reference is the
+    # same answers with those cells left empty.
+    numbers = _answers()
+    words = _as_words(numbers)
+    cells = [3, 40, 77]
+    words.loc[cells, "seat"] = "-99"
+    blank = numbers.copy()
+    blank.loc[cells, "seat"] = np.nan
+    path = tmp_path / "w99.csv"
+    words.to_csv(path, index=False)
+    reference = cfa_tool.fit(PLAIN, blank)
+    for model in (MODEL, MODEL.rstrip("\n") + ", -99 = -99\n"):
+        result = cfa_tool.fit(model, path, missing_codes=[-99])
+        assert result.fit.chi_square == pytest.approx(reference.fit.chi_square, rel=1e-10)
+        assert any("3 cells of the items coded by an 'answers' statement held a code given with --missing-codes" in w
+                   for w in result.warnings)
+
+
+def test_a_middle_not_sure_among_words_stays_an_answer(tmp_path):
+    # re-check 8: 'Not sure' as the middle word of a scale, listed in the statement, was read as no answer before
+    # the statement coded it (the no-answer vocabulary); among words it is an answer.  Reference: the numbers.
+    numbers = _answers()
+    words = _as_words(numbers).replace("Neither agree nor disagree", "Not sure")
+    path = tmp_path / "notsure.csv"
+    words.to_csv(path, index=False)
+    statement = STATEMENT.replace("Neither agree nor disagree", "Not sure")
+    result = cfa_tool.fit(PLAIN + statement, path)
+    assert result.fit.chi_square == pytest.approx(cfa_tool.fit(PLAIN, numbers).fit.chi_square, rel=1e-10)
