@@ -74,6 +74,10 @@ class ProblemKind(enum.Enum):
     SAME_ANSWER_ROWS = ("same answer to every item", "same answer throughout", False)
     # not of the solution but of the data: a group with fewer rows than its model has free parameters
     SMALL_GROUP = ("group smaller than its model", "fewer rows than parameters", False)
+    # not of the solution but of the data scored with an earlier fit (workflows.factor_scores): rows in groups the fit
+    # does not have (no scores), and answers outside those of the rows the fit analysed (scores extrapolate)
+    UNKNOWN_GROUPS_SCORED = ("rows in groups the fit does not have", "groups the fit lacks", False)
+    ANSWERS_BEYOND_FITTED = ("answers beyond the fitted rows", "answers beyond the fit's", False)
 
 
 #: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them
@@ -180,6 +184,8 @@ class Problem:
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
             K.SMALL_GROUP: f"fewer rows ({v.split('.')[0]}) than free parameters of the group's model",
+            K.UNKNOWN_GROUPS_SCORED: "rows in groups the earlier fit does not have, which get no scores",
+            K.ANSWERS_BEYOND_FITTED: "answers outside the range of the rows the earlier fit analysed",
             K.SAME_ANSWER_ROWS: "rows that gave the same answer to every item, reverse-worded ones included (kept in "
                                 "the analysis)",
             K.FACTOR_POINTS_AGAINST_ITEMS: f"factor {', '.join(names)} pointing against its items (a higher score "

@@ -10,7 +10,7 @@ order; a row that cannot be scored keeps empty cells, and the report counts them
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from enum import Enum
 from pathlib import Path
 
@@ -486,12 +486,20 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors, answered)
     warnings = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal)
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    scored_problems = []  # first in every view, before the fit's own (the rows scored are this run's data)
+    if unknown_groups:
+        scored_problems.append(Problem(ProblemKind.UNKNOWN_GROUPS_SCORED, (), None, unknown_groups + ".",
+                                       "write each row's group as the fit's data wrote it, or fit the model to "
+                                       "these groups."))
     if not ordinal:
         outside = _outside_fitted_ranges(result.data, base.items, rows, source)
         if outside:
-            warnings.insert(0, outside)
-    if unknown_groups:
-        warnings.insert(0, unknown_groups)
+            text, advice = outside
+            scored_problems.append(Problem(ProblemKind.ANSWERS_BEYOND_FITTED, (), None, text, advice))
+    if scored_problems:
+        result = replace(result, problems=tuple(scored_problems) + tuple(result.problems))
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names")
     if group is not None:
         from cfa_tool.data.labels import label_notes
@@ -739,7 +747,7 @@ def _numeric(frame: pd.DataFrame, items: tuple[str, ...], source: str) -> np.nda
     return _numeric_rows(frame, items, source)
 
 
-def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> str | None:
+def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> tuple[str, str] | None:
     """The caution for answers of the scored file outside the lowest and highest answers of the rows the earlier fit
     analysed (``data``: its DataSummary, whose ``ranges`` are empty for a fit of summary statistics): a file coded
     0-4 scored with a fit of answers coded 1-5 gets scores shifted by the difference, with no other sign of it."""
@@ -760,9 +768,10 @@ def _outside_fitted_ranges(data, items, rows: np.ndarray, source: str) -> str | 
         return None
     listed = "; ".join(f"'{printable(item)}', {n} answer{'s' if n != 1 else ''} outside {lo:g} to {hi:g}"
                        for item, n, lo, hi in found[:5]) + (f"; and {len(found) - 5} more items" if len(found) > 5 else "")
-    return (f"{source} holds answers outside the range of the rows the earlier fit analysed: {listed}; scores of such "
+    return (f"{source} holds answers outside the range of the rows the earlier fit analysed: {listed}. Scores of such "
             f"answers extrapolate the fit, and if the files code the answers differently (0 to 4 against 1 to 5, "
-            f"say) every score is shifted: recode one file as the other before scoring")
+            f"say) every score is shifted.", "check that both files code the answers alike, and recode one as the "
+            f"other before scoring.")
 
 
 def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -> str | None:
@@ -787,7 +796,7 @@ def _unknown_groups(group_of_row: np.ndarray, labels, group: str, source: str) -
             f"have: {', '.join(shown)}{more}; the fit's groups are {fitted}, and a label must match one as written")
     if not any(v in known for v in group_of_row if v is not None):
         raise OptionError(f"no row of {source} can be scored: {text}")
-    return text + "; those rows get no scores"
+    return text + "; those rows get no scores"  # (a caution first: ProblemKind.UNKNOWN_GROUPS_SCORED)
 
 
 def _group_keys(frame: pd.DataFrame, group: str) -> np.ndarray:

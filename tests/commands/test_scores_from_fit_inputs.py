@@ -121,7 +121,8 @@ def test_missing_value_codes_of_the_earlier_fit_are_read_so_and_codes_in_the_sco
     assert code == 0 and text.index("-99") < text.index("Factor scores:")
     kinds = [p["kind"] for p in json.loads(js2.read_text())["problems"]]
     own = [p["kind"] for p in json.loads(js.read_text())["problems"]]
-    assert len(kinds) == len(own) + 1
+    # the -99 answers: a value that looks like no answer, and one outside the range of the rows the fit analysed
+    assert sorted(kinds) == sorted(own + ["values that look like no answers", "answers beyond the fitted rows"])
     # the Python entry point carries the codes as well
     import cfa_tool
 
@@ -255,13 +256,14 @@ def test_rows_in_groups_the_fit_does_not_have_are_said_first_and_none_scored_is_
     some = hs_data.copy()
     some.loc[some.index[:10], "school"] = "pasteur"
     some.to_csv(tmp_path / "some.csv")
-    out = tmp_path / "some_scores.csv"
-    code, text, err = _run(["scores", model_file, "--data", tmp_path / "some.csv", "--from-fit", saved, "--output", out],
-                           capsys)
-    flat = " ".join(text.split())
+    out, js = tmp_path / "some_scores.csv", tmp_path / "some.json"
+    code, text, err = _run(["scores", model_file, "--data", tmp_path / "some.csv", "--from-fit", saved, "--output", out,
+                            "--json", js], capsys)
     assert code == 0, err
-    assert "10 rows of" in flat and "'pasteur' (10 rows; the fit has 'Pasteur')" in flat
-    assert flat.index("'pasteur' (10 rows") < flat.index("Scores of")  # before the tables
+    first = json.loads(js.read_text())["problems"][0]  # a caution first in every view
+    assert first["kind"] == "rows in groups the fit does not have"
+    assert "10 rows of" in first["explanation"] and "'pasteur' (10 rows; the fit has 'Pasteur')" in first["explanation"]
+    assert text.index("Check before interpreting") < text.index("Scores of")
     scored = pd.read_csv(out)
     assert scored.filter(like="_regression").notna().all(axis=1).sum() == len(hs_data) - 10
 
@@ -278,15 +280,17 @@ def test_answers_outside_the_fitted_rows_range_are_said_first(tmp_path, model_fi
     shifted = hs_data.copy()
     shifted[ITEMS] = shifted[ITEMS] - 1
     shifted.to_csv(tmp_path / "shifted.csv")
+    js = tmp_path / "s.json"
     code, text, err = _run(["scores", model_file, "--data", tmp_path / "shifted.csv", "--from-fit", saved, "--output",
-                            tmp_path / "s.csv"], capsys)
-    flat = " ".join(text.split())
+                            tmp_path / "s.csv", "--json", js], capsys)
     below = int((shifted["x1"] < hs_data["x1"].min()).sum())
     assert code == 0, err
     assert below >= 1
+    first = json.loads(js.read_text())["problems"][0]  # a caution first in every view
+    assert first["kind"] == "answers beyond the fitted rows"
     assert (f"'x1', {below} answer{'s' if below != 1 else ''} outside {hs_data['x1'].min():g} to "
-            f"{hs_data['x1'].max():g}") in flat
-    assert flat.index("outside the range of the rows the earlier fit analysed") < flat.index("Scores of")
+            f"{hs_data['x1'].max():g}") in first["explanation"]
+    assert text.index("Check before interpreting") < text.index("Scores of")
     # the fit's own rows: nothing to say
     code, text, _ = _run(["scores", model_file, "--data", tmp_path / "rows.csv", "--from-fit", saved, "--output",
                           tmp_path / "own.csv"], capsys)
