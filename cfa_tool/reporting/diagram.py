@@ -66,7 +66,16 @@ def item_labels(result) -> dict[str, str]:
     observed = list(result.observed)
     if all(len(name) <= LONG_NAME for name in observed):
         return {}
-    return {name: f"I{k + 1}" for k, name in enumerate(observed)}
+    names = set(observed) | set(result.latent)
+    for prefix in LABEL_PREFIXES:  # never a label that is also a name of the model (a column called 'I3')
+        labels = {name: f"{prefix}{k + 1}" for k, name in enumerate(observed)}
+        if not names & set(labels.values()):
+            return labels
+    return {name: f"#{k + 1}" for k, name in enumerate(observed)}
+
+
+#: the short labels' letters, the first one no name of the model takes (I1, I2, ...; then item1, ...; then Q1, ...)
+LABEL_PREFIXES = ("I", "item", "Q", "V")
 
 
 def _box_width(name: str) -> float:

@@ -237,3 +237,17 @@ def test_a_table_wider_than_the_terminal_wraps_its_widest_text_and_its_number_he
     assert re.search(r"0\.441\s+12", text) and re.search(r"1\.390\s+3", text)
     heading = [line.split() for line in text.split("\n")[2:6]]
     assert [words[0] for words in heading[:3]] == ["Random", "values,", "95th"] and heading[3][-2:] == ["percentile", "Rows"]
+
+
+def test_short_labels_never_take_a_name_of_the_model():
+    # re-check 8: with long names and a column literally named 'I3', the key read "I2 = I3" and "I3 = <another item>"
+    from types import SimpleNamespace
+
+    from cfa_tool.reporting.diagram import item_labels
+
+    observed = ("The bus came on time, as the timetable said", "I3", "Information at the stop was accurate")
+    labels = item_labels(SimpleNamespace(observed=observed, latent=("punctuality",)))
+    assert set(labels) == set(observed) and not set(labels.values()) & set(observed)
+    assert labels["I3"] == "item2"
+    plain = item_labels(SimpleNamespace(observed=observed[:1] + ("x2", "x3"), latent=("f",)))
+    assert list(plain.values()) == ["I1", "I2", "I3"]
