@@ -7,6 +7,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from cfa_tool.language.names import written_name
+
 
 @dataclass(frozen=True)
 class ItemShape:
@@ -78,7 +80,9 @@ def few_category_note(values: np.ndarray, names: tuple[str, ...]) -> str | None:
     if not few:
         return None
     listed = ", ".join(few[:8]) + (f" and {len(few) - 8} more" if len(few) > 8 else "")
-    which = "all" if len(few) == len(names) else ",".join(few)
+    which = "all" if len(few) == len(names) else ",".join(written_name(x) for x in few)
+    if which != "all" and which != ",".join(few):  # names written in double quotes: the list in single quotes
+        which = f"'{which}'"
     return (f"{len(few)} of the {len(names)} items ({listed}) have at most {FEW_CATEGORIES} answer categories and are "
             f"analysed here as continuous by maximum likelihood; with so few categories loadings tend to come out "
             f"too small and the fit to be misjudged, and analysing the answers as ordered categories is usually "

@@ -78,3 +78,31 @@ def test_one_routine_finds_each_items_lowest_and_highest_answer():
     X[7, 0] = -99
     with np.errstate(invalid="ignore"):  # as odd_values calls it: the column without answers compares NaN
         assert 0 in _may_stand_out(X).tolist()
+
+
+def test_the_suggested_option_names_items_as_the_option_reads_them(tmp_path):
+    # re-check 8: the note printed '--ordinal I could find a seat, most days', which the option cannot read; names
+    # with punctuation are written in double quotes (as the model language writes them) and the list in single
+    # quotes for the shell.  The suggested value is checked by giving it to the fit.
+    import shlex
+
+    from cfa_tool.data.descriptives import few_category_note
+
+    rng = np.random.default_rng(1)
+    f = rng.normal(size=400)
+    names = ["I could find a seat, most days", "b", "c"]
+    data = pd.DataFrame({x: np.digitize(0.8 * f + rng.normal(size=400) * 0.6, [-1, 0, 1]) + 1.0 for x in names})
+    data["e"] = 0.8 * f + rng.normal(size=400) * 0.6
+    note = few_category_note(data.to_numpy(), tuple(data.columns))
+    suggested = shlex.split(note.split("--ordinal ", 1)[1])[0]
+    assert suggested == '"I could find a seat, most days",b,c'
+    from cfa_tool.cli import main
+
+    data.to_csv(tmp_path / "d.csv", index=False)
+    (tmp_path / "m.cfa").write_text('factor f: "I could find a seat, most days", b, c, e\n')
+    saved = tmp_path / "fit.json"
+    assert main(["fit", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "d.csv"), "--ordinal", suggested, "--json",
+                 str(saved)]) == 0
+    import json
+
+    assert json.loads(saved.read_text())["estimator"] != "maximum likelihood"  # the ordinal estimator
