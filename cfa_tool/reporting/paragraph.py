@@ -378,11 +378,12 @@ def _without_group_clause(count: int, read: int, column: str | None) -> str:
             f"{'was' if count == 1 else 'were'} left out")
 def answer_coding_sentence(data) -> str:
     """How answers recorded as words were coded (the model's 'answers' statements), e.g. 'Answers recorded as words
-    were coded 1 (Strongly disagree) to 5 (Strongly agree).'; empty when the answers were numbers."""
+    were coded 1 (Strongly disagree) to 5 (Strongly agree).', naming the items when a statement coded only some of
+    them; empty when the answers were numbers."""
     record = getattr(data, "answer_coding", ())
     if not record:
         return ""
-    if len(record) == 1:
+    if len(record) == 1 and set(record[0][0]) >= set(getattr(data, "variables", ())):  # every item coded alike
         return f"Answers recorded as words were coded {coding_described(record[0][1])}."
     each = "; ".join(f"{coding_described(answers)} for {_list(list(items))}" for items, answers in record)
     return f"Answers recorded as words were coded {each}."

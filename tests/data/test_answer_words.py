@@ -256,3 +256,19 @@ def test_a_middle_not_sure_among_words_stays_an_answer(tmp_path):
     statement = STATEMENT.replace("Neither agree nor disagree", "Not sure")
     result = cfa_tool.fit(PLAIN + statement, path)
     assert result.fit.chi_square == pytest.approx(cfa_tool.fit(PLAIN, numbers).fit.chi_square, rel=1e-10)
+
+
+def test_the_paragraph_names_the_items_a_statement_coded_when_it_coded_only_some(tmp_path):
+    # re-check 8: with 'answers ... for ITEMS' the paragraph read as if every item had been coded from words
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    numbers = _answers()
+    words = numbers.copy()
+    for x in ("seat", "clean", "quiet"):
+        words[x] = numbers[x].map(lambda v: WORDS.get(v) if v == v else None)
+    path = tmp_path / "some_words.csv"
+    words.to_csv(path, index=False)
+    model = PLAIN + STATEMENT.rstrip("\n") + " for seat, clean, quiet\n"
+    paragraph = " ".join(methods_paragraph(cfa_tool.fit(model, path)).split())
+    assert ("Answers recorded as words were coded 1 (Strongly disagree) to 5 (Strongly agree) for seat, clean, and "
+            "quiet.") in paragraph
