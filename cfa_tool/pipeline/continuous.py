@@ -13,7 +13,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from cfa_tool.assessment.admissibility import small_group_problems, solution_problems
-from cfa_tool.data.descriptives import item_shape
+from cfa_tool.data.descriptives import answer_extremes, item_shape
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, incomplete_case_diagnostics, normalized_residuals
 from cfa_tool.assessment.fit_indices import (baseline_chi_square, cfi_value, fit_indices, normal_theory_parts,
@@ -340,8 +340,11 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     method = FitMethod(Estimator.MAXIMUM_LIKELIHOOD, options.test, information,
                        MissingData.LISTWISE if likelihood.complete_data else MissingData.FULL_INFORMATION)
     each = [r.data.ranges for r in group_results]
-    ranges = tuple(zip(*(np.min([[lo for lo, _ in e] for e in each], axis=0).tolist(),
-                         np.max([[hi for _, hi in e] for e in each], axis=0).tolist()))) if all(each) else ()
+    if all(each):  # every group's (lowest, highest) answer per item: the lowest and highest over the groups
+        extremes = np.array(each)
+        ranges = tuple(zip(extremes[:, :, 0].min(axis=0).tolist(), extremes[:, :, 1].max(axis=0).tolist()))
+    else:
+        ranges = ()
     overall = DataSummary(first.source, sum(m.rows_read for _, m in groups), sum(m.rows_dropped for _, m in groups),
                           n_total, table.observed, item_means, item_sds, ranges=ranges)
     return fit_result(spec=spec, method=method, converged=est.converged, iterations=est.iterations, message=est.message,
@@ -429,8 +432,7 @@ def _summary(m: SampleMoments, observed: tuple[str, ...], gm: GroupMoments) -> D
     if rows is not None and rows is m.rows and tuple(m.names) != tuple(observed):
         rows = rows[:, [m.names.index(x) for x in observed]]
     shape = item_shape(rows) if rows is not None else None
-    ranges = () if rows is None or not len(rows) else tuple(zip(np.nanmin(rows, axis=0).tolist(),
-                                                                 np.nanmax(rows, axis=0).tolist()))
+    ranges = () if rows is None or not len(rows) else tuple(zip(*(e.tolist() for e in answer_extremes(rows))))
     return DataSummary(m.source, m.rows_read, m.rows_dropped, m.n_obs, observed,
                        tuple(gm.mean.tolist()), tuple(np.sqrt(np.diag(gm.covariance)).tolist()),
                        *((shape.answered, shape.skewness, shape.kurtosis) if shape is not None else ()), ranges=ranges)
