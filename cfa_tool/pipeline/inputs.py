@@ -234,8 +234,7 @@ def moments_for(spec: Spec, frame: pd.DataFrame, source: str, group: str | None 
 
 
 def _check_group_column(spec: Spec, group: str) -> None:
-    if not isinstance(group, str):
-        raise OptionError(f"the group column must be given by its name (text), not {type(group).__name__}")
+    opt.group_column(group)
     if group in spec.observed_names:
         raise OptionError(f"'{group}' is an indicator in the model and cannot also be the group column")
 
