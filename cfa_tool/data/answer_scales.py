@@ -16,6 +16,7 @@ COMMON_SCALES: tuple[tuple[str, ...], ...] = (
      "Strongly agree"),
     ("Strongly disagree", "Disagree", "Agree", "Strongly agree"),
     ("Never", "Rarely", "Sometimes", "Often", "Always"),
+    ("Never", "Sometimes", "Often", "Always"),
     ("Never", "Rarely", "Sometimes", "Often", "Very often"),
     ("Very dissatisfied", "Dissatisfied", "Neither satisfied nor dissatisfied", "Satisfied", "Very satisfied"),
     ("Very dissatisfied", "Dissatisfied", "Neutral", "Satisfied", "Very satisfied"),
@@ -42,4 +43,8 @@ def suggested_statement(values: np.ndarray) -> str | None:
         return None
     scale, keys = found[0]
     listed = ", ".join(f'"{written.get(k, w)}" = {i}' for i, (k, w) in enumerate(zip(keys, scale), start=1))
-    return f"answers {listed}"
+    absent = ", ".join('"' + w + '"' for k, w in zip(keys, scale) if k not in written)  # words no cell holds
+    if not absent:
+        return f"answers {listed}"
+    return (f"answers {listed} (no cell holds {absent}: if your scale has no such answer, leave it out and number "
+            f"the other answers from 1)")

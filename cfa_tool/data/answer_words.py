@@ -14,6 +14,7 @@ import pandas as pd
 from dataclasses import replace
 
 from cfa_tool.data.moments import row_numbers
+from cfa_tool.data.non_answers import says_no_answer
 from cfa_tool.input_files import base_name
 from cfa_tool.errors import DataError, Location, ModelError, OptionError, printable
 from cfa_tool.language.spec import AnswerCoding, AnswerWord, Name, Spec, answer_key
@@ -65,6 +66,8 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
         return frame, []
     frame = frame.copy()
     no_answer = set(float(c) for c in missing_codes)
+    for coding in {id(c): c for c in codings.values()}.values():
+        _check_codes_of_answers(coding, no_answer)
     read_as_none: list[tuple[str, int]] = []
     for item, coding in codings.items():
         words, numbers = coding.codes_by_word(), coding.codes_by_number()
@@ -108,6 +111,17 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
                      f"{'was' if total == 1 else 'were'} read as no answer ("
                      + ", ".join(f"{printable(x)} {n}" for x, n in read_as_none) + ")")
     return frame, notes
+
+
+def _check_codes_of_answers(coding: AnswerCoding, no_answer: set[float]) -> None:
+    """A code given with --missing-codes may stand for a word that means no answer ('Don't know' = 9), never for an
+    answer: '--missing-codes 5' with '"Always" = 5' would read every 'Always' as no answer."""
+    answers = [a for a in coding.answers if a.code in no_answer and a.word is not None and not says_no_answer(a.word)]
+    if answers:
+        a = answers[0]
+        raise OptionError(f"--missing-codes {a.code:g} is the code {coding.origin} gives the answer '{printable(a.word)}'; "
+                          f"a code of no answer cannot also stand for an answer (every '{printable(a.word)}' would be "
+                          f"read as no answer): leave {a.code:g} out of --missing-codes")
 
 
 def _first_row(column: pd.Series, value: object, rows: np.ndarray) -> int:

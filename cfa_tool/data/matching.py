@@ -101,6 +101,7 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
     data_name = base_name(data_source)
     rows = row_numbers(frame)
     found: dict[object, list[tuple[str, float, np.ndarray, str | None]]] = {}
+    codings = spec.answer_codings()
     for name, (low, high, keying, named) in declared_scales(spec, frame).items():
         judged = _outside(frame, name, low, high)
         if judged is None:
@@ -109,6 +110,11 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
         if not outside.any() or not (named or whole and few):  # a partner measured otherwise or on another scale
             continue
         labels = (value_labels or {}).get(name) or {}
+        coding = codings.get(name)  # answers recorded as words: each code's word is its label
+        if coding is not None:
+            labels = {}
+            for a in coding.answers:
+                labels[a.code] = labels[a.code] + " / " + a.shown if a.code in labels else a.shown
         for v in sorted(set(values[outside].tolist())):
             found.setdefault(keying, []).append((name, v, rows[values == v], labels.get(v)))
     for keying, stray in found.items():
@@ -123,6 +129,15 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
         wider = not any(label or code_like(v) for _, v, _, label in stray)  # answers, perhaps, of a wider scale
         strays = {name for name, *_ in stray}
         location = next((i.location for i in keying.items if i.text in strays), keying.items[0].location)
+        lines = sorted({codings[n].location.line for n in strays if n in codings and codings[n].carried_from is None})
+        if lines and all(n in codings for n in strays):  # the codes are words' codes: the two statements disagree
+            raise ModelError(
+                f"the 'answers' {'statement' if len(lines) == 1 else 'statements'} on line "
+                f"{' and '.join(str(n) for n in lines)} {'codes' if len(lines) == 1 else 'code'} answers of "
+                f"{data_name} outside the scale {keying.minimum:g} to {keying.maximum:g} declared here: "
+                f"{'; '.join(shown)}{more}; number the words to match this scale, or give the scale's true lowest "
+                f"and highest answers here",
+                location, spec.source_line(location))
         raise ModelError(
             f"{data_name} holds answers outside the scale {keying.minimum:g} to {keying.maximum:g} declared here: "
             f"{'; '.join(shown)}{more}; if they are typing errors or codes for no answer, give --missing-codes "

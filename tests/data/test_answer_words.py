@@ -188,8 +188,15 @@ def test_the_refusal_of_words_suggests_the_statement_but_never_applies_it(files,
     # words of no common scale (or of several that would code them otherwise) get no suggestion
     assert suggested_statement(np.array(["Blue", "Green"], dtype=object)) is None
     assert suggested_statement(np.array(["Disagree", "Agree"], dtype=object)) is None  # 4 or 5 points?
-    assert suggested_statement(np.array(["often", "Never", "Always", None, 3.5], dtype=object)) == \
-        'answers "Never" = 1, "Rarely" = 2, "Sometimes" = 3, "often" = 4, "Always" = 5'
+    # three frequency words fit the four-point scale and the five-point one, whose codes differ: no suggestion
+    assert suggested_statement(np.array(["often", "Never", "Always", None, 3.5], dtype=object)) is None
+    # the four-point frequency scale is not offered as the five-point one with 'Rarely' added
+    assert suggested_statement(np.array(["often", "Never", "Always", "Sometimes", 3.5], dtype=object)) == \
+        'answers "Never" = 1, "Sometimes" = 2, "often" = 3, "Always" = 4'
+    # a scale found but for one word: the statement says which word no cell holds
+    four_of_five = suggested_statement(np.array(["Never", "Rarely", "Often", "Always"], dtype=object))
+    assert four_of_five.startswith('answers "Never" = 1, "Rarely" = 2, "Sometimes" = 3, "Often" = 4, "Always" = 5')
+    assert 'no cell holds "Sometimes"' in four_of_five
 
 
 def test_replication_and_bootstrap_read_the_words_so_too(files):
@@ -272,3 +279,28 @@ def test_the_paragraph_names_the_items_a_statement_coded_when_it_coded_only_some
     paragraph = " ".join(methods_paragraph(cfa_tool.fit(model, path)).split())
     assert ("Answers recorded as words were coded 1 (Strongly disagree) to 5 (Strongly agree) for seat, clean, and "
             "quiet.") in paragraph
+
+
+def test_a_missing_code_that_codes_an_answer_word_is_refused(files, capsys):
+    """'--missing-codes 5' with '"Strongly agree" = 5' would read every 'Strongly agree' as no answer: refused
+    before any fit; a code that stands for a word of no answer ('No answer' = 9) is read as missing, as asked."""
+    assert main(["fit", str(files / "words.cfa"), "--data", str(files / "words.csv"), "--missing-codes", "5"]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "--missing-codes 5" in err and "'Strongly agree'" in err and "line 3" in err
+    with pytest.raises(OptionError):
+        cfa_tool.fit(MODEL, _as_words(_answers()), missing_codes=[5])
+    frame = _as_words(_answers())
+    frame.loc[:9, "punctual"] = "No answer"
+    coded = cfa_tool.fit(MODEL.replace('= 5\n', '= 5, "No answer" = 9\n'), frame, missing_codes=[9])
+    assert coded.data.rows_read == len(frame) and any("read as no answer (punctual 10)" in w for w in coded.warnings)
+
+
+def test_words_coded_outside_a_declared_scale_name_the_statement_not_missing_codes(files, tmp_path, capsys):
+    """A 'reversed ... on 1 to 4' scale and an 'answers' statement coding a word 5 disagree: the error names the
+    words and the statement's line, and does not offer --missing-codes (which would drop every such answer)."""
+    model = tmp_path / "scale.cfa"
+    model.write_text(MODEL + "reversed quiet on 1 to 4\n")
+    assert main(["fit", str(model), "--data", str(files / "words.csv")]) == 2
+    err = capsys.readouterr().err
+    assert "the 'answers' statement on line 3 codes answers of words.csv outside the scale 1 to 4" in err
+    assert "'quiet' 5 'Strongly agree'" in err and "--missing-codes" not in err
