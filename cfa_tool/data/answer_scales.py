@@ -12,6 +12,7 @@ from cfa_tool.numbers import number as strict_number
 #: statement to write (never applied without it); each scale in its order, lowest first
 COMMON_SCALES: tuple[tuple[str, ...], ...] = (
     ("Strongly disagree", "Disagree", "Neither agree nor disagree", "Agree", "Strongly agree"),
+    ("Strongly disagree", "Disagree", "Neutral", "Agree", "Strongly agree"),
     ("Strongly disagree", "Disagree", "Somewhat disagree", "Neither agree nor disagree", "Somewhat agree", "Agree",
      "Strongly agree"),
     ("Strongly disagree", "Disagree", "Agree", "Strongly agree"),

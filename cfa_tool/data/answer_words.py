@@ -16,7 +16,7 @@ from dataclasses import replace
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.non_answers import says_no_answer
 from cfa_tool.input_files import base_name
-from cfa_tool.errors import DataError, Location, ModelError, OptionError, printable
+from cfa_tool.errors import DataError, Location, ModelError, OptionError, character_names, printable
 from cfa_tool.language.spec import AnswerCoding, AnswerWord, Name, Spec, answer_key
 from cfa_tool.numbers import number as strict_number
 
@@ -134,7 +134,9 @@ def _cell_error(source: str, item: str, column: pd.Series, value: object, wrong:
     where = f"{source}: column '{printable(item)}', data row {_first_row(column, value, rows)}"
     line = coding.origin
     if wrong == "word":
-        return DataError(f"{where}: the answer '{_shown(value)}' is not one of the words of {line} ({_listed(coding)}); "
+        marks = character_names(str(value), "".join(a.shown for a in coding.answers))  # a look-alike letter shown
+        return DataError(f"{where}: the answer '{_shown(value)}'{marks} is not one of the words of {line} "
+                         f"({_listed(coding)}); "
                          f"add it to the statement with its code, or correct the cell (leave it empty for no answer)")
     if wrong == "number":
         number = float(strict_number(value.strip()) if isinstance(value, str) else value)

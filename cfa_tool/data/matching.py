@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from cfa_tool.suggest import close_names
-from cfa_tool.errors import ModelError, character_names
+from cfa_tool.errors import ModelError, OptionError, character_names
 from cfa_tool.language.spec import Spec
 from cfa_tool.data.odd_values import code_like
 from cfa_tool.input_files import base_name
@@ -70,6 +70,19 @@ def declared_scales(spec: Spec, frame) -> dict[str, tuple[float, float, object, 
                 if x not in declared and x in frame.columns:
                     out.setdefault(x, (keying.minimum, keying.maximum, keying, False))
     return out
+
+
+def check_codes_off_scales(spec: Spec, missing_codes: tuple[float, ...]) -> None:
+    """A code given with --missing-codes must not be an answer of a scale a 'reversed ... on MIN to MAX' statement
+    declares (a whole number from MIN to MAX): '--missing-codes 5' with 'reversed short_wait on 1 to 5' would read
+    every top answer of those items as no answer."""
+    for keying in spec.reversed:
+        on_scale = [c for c in missing_codes if keying.minimum <= c <= keying.maximum and float(c).is_integer()]
+        if on_scale:
+            raise OptionError(
+                f"--missing-codes {on_scale[0]:g} is an answer of the scale {keying.minimum:g} to {keying.maximum:g} "
+                f"declared by the 'reversed' statement on line {keying.items[0].location.line} (every such answer "
+                f"would be read as no answer): leave {on_scale[0]:g} out of --missing-codes, or correct the scale")
 
 
 def _outside(frame, name: str, low: float, high: float):

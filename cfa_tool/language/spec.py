@@ -141,10 +141,16 @@ class ReverseKeying:
     location: Location
 
 
+#: marks a cell can hold unseen (zero-width spaces and joiners, direction marks, a byte-order mark, a soft hyphen)
+_INVISIBLE_MARKS = dict.fromkeys(map(ord, "\u00ad\u200b\u200c\u200d\u200e\u200f\u202a\u202b\u202c\u202d\u202e"
+                                      "\u2060\u2061\u2062\u2063\u2064\ufeff"))
+
+
 def answer_key(word: str) -> str:
-    """How an answer word is matched: case and the spaces around it do not count ('  agree ' is 'Agree');
-    the word itself must be whole (no partial matches)."""
-    return word.strip().casefold()
+    """How an answer word is matched: case, the spaces around it, the kind and number of spaces inside it (a
+    no-break space is a space) and invisible marks (a zero-width space) do not count ('  agree ' and
+    'Strongly\u00a0agree' are 'Agree' and 'Strongly agree'); the word itself must be whole (no partial matches)."""
+    return " ".join(word.translate(_INVISIBLE_MARKS).split()).casefold()
 
 
 @dataclass(frozen=True)

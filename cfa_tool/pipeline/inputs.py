@@ -14,7 +14,7 @@ import pandas as pd
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
-from cfa_tool.data.matching import answer_range_notes, check_columns, check_declared_ranges
+from cfa_tool.data.matching import answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
 from cfa_tool.data.descriptives import few_category_note
@@ -147,6 +147,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
                            text_columns: tuple[str, ...] = ()) -> tuple[Spec, LoadedData, list[str]]:
     keep = keep_option(keep)
     spec = load_spec(model)
+    check_codes_off_scales(spec, missing_codes_option(missing_codes))
     loaded = load_data(data, sheet, missing_codes, text_columns)
     frame = loaded.frame
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)

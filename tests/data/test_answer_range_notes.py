@@ -11,6 +11,7 @@ import pandas as pd
 import pytest
 
 import cfa_tool
+from cfa_tool.errors import OptionError
 from tests.data.test_non_answer_codes import refusal
 
 ITEMS = ["a1", "a2", "a3", "b1", "b2", "b3"]
@@ -110,3 +111,13 @@ def test_items_that_are_not_all_numbers_are_judged_one_by_one(answers):
     notes = answer_range_notes(spec, mixed, "<data frame>")
     assert [n.split(" (")[0] for n in notes] == [f"<data frame>: 'a2' has the answer {v}" for v in (0, 6, 8, 10)]
     assert notes == answer_range_notes(spec, doubled, "<data frame>", values=doubled[ITEMS].to_numpy(dtype=float))
+
+
+def test_a_missing_code_on_a_declared_scale_is_refused(answers):
+    """--missing-codes 5 with 'reversed a1 on 1 to 5' would read every top answer of a1..a3 as no answer
+    (hostile tester, 9th round: 460 answers dropped with a note): refused, naming the code, scale and line; a code
+    off the scale (0, 9) is a code of no answer and is read so."""
+    with pytest.raises(OptionError, match="--missing-codes 5 is an answer of the scale 1 to 5 declared by "
+                                                   "the 'reversed' statement on line 3"):
+        cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", answers, missing_codes=[0, 5])
+    assert cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", answers, missing_codes=[0, 9]).converged

@@ -193,6 +193,10 @@ def test_the_refusal_of_words_suggests_the_statement_but_never_applies_it(files,
     # the four-point frequency scale is not offered as the five-point one with 'Rarely' added
     assert suggested_statement(np.array(["often", "Never", "Always", "Sometimes", 3.5], dtype=object)) == \
         'answers "Never" = 1, "Sometimes" = 2, "often" = 3, "Always" = 4'
+    # the agreement scale with 'Neutral' as its middle word
+    assert suggested_statement(np.array(["Agree", "neutral", "Strongly agree", "Disagree", "Strongly disagree"],
+                                        dtype=object)) == ('answers "Strongly disagree" = 1, "Disagree" = 2, '
+                                                           '"neutral" = 3, "Agree" = 4, "Strongly agree" = 5')
     # a scale found but for one word: the statement says which word no cell holds
     four_of_five = suggested_statement(np.array(["Never", "Rarely", "Often", "Always"], dtype=object))
     assert four_of_five.startswith('answers "Never" = 1, "Rarely" = 2, "Sometimes" = 3, "Often" = 4, "Always" = 5')
@@ -304,3 +308,16 @@ def test_words_coded_outside_a_declared_scale_name_the_statement_not_missing_cod
     err = capsys.readouterr().err
     assert "the 'answers' statement on line 3 codes answers of words.csv outside the scale 1 to 4" in err
     assert "'quiet' 5 'Strongly agree'" in err and "--missing-codes" not in err
+
+
+def test_words_match_whatever_their_invisible_marks_and_kinds_of_space():
+    """A no-break space inside 'Strongly agree' and a zero-width space after 'Agree' (as survey exports and
+    spreadsheets leave them) are the listed words; a look-alike letter is an error that names the letter."""
+    numbers = _answers()
+    words = _as_words(numbers)
+    words.loc[5, "clean"] = WORDS[int(numbers.loc[5, "clean"])].replace(" ", "\u00a0") + "\u200b"
+    words.loc[7, "seat"] = "\ufeff" + WORDS[int(numbers.loc[7, "seat"])]
+    assert np.allclose(cfa_tool.fit(MODEL, words).theta, cfa_tool.fit(PLAIN, numbers).theta, rtol=0, atol=1e-10)
+    words.loc[9, "info"] = "Agr\u0435e"  # a Cyrillic 'e'
+    with pytest.raises(DataError, match="U\\+0435 CYRILLIC SMALL LETTER IE"):
+        cfa_tool.fit(MODEL, words)
