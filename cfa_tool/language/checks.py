@@ -329,11 +329,20 @@ def _gkey(ref: ParameterRef) -> tuple:
 
 def _check_contradictions(spec: Spec) -> None:
     fixed: dict[tuple, tuple[float, ParameterRef]] = {}
+    latent = set(spec.factor_names)
+    indicated = {i.text for f in spec.factors for i in f.indicators}  # factors of a higher-order factor
     for setting in spec.fixed:
         for ref in setting.refs:
             if ref.kind == "variance" and setting.value < 0:
                 raise _fail(spec, f"{ref} is fixed to {setting.value:g}, but a variance cannot be negative; fix it to 0 "
                                   f"or more", ref.location)
+            if (ref.kind == "variance" and setting.value == 0 and len(set(ref.names)) == 1
+                    and ref.names[0] in latent and ref.names[0] not in indicated):
+                # a higher-order factor's own part (its residual variance) may be 0; a factor with no variance at
+                # all measures nothing, and its loadings cannot be estimated
+                raise _fail(spec, f"{ref} is fixed to 0: a factor without variance measures nothing, and its "
+                                  f"loadings cannot be estimated; fix it to a positive value (1 sets the factor's "
+                                  f"scale) or remove the statement", ref.location)
             key = _gkey(ref)
             if key in fixed and fixed[key][0] != setting.value:
                 raise _fail(spec, f"{ref} is fixed to {setting.value:g} here but to {fixed[key][0]:g} on line {fixed[key][1].location.line}", ref.location)

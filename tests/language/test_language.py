@@ -170,6 +170,9 @@ def _error(text: str) -> ModelError:
         ("factor f: a, b, c\nfix variance(f) = -1\n", 2, 5, "variance(f) is fixed to -1, but a variance cannot be "
                                                            "negative"),
         ("factor f: a, b, c\nbound variance(a) <= -0.5\n", 2, 7, "bounded to at most -0.5, but a variance cannot"),
+        # hostile trial 9: 'fix variance(f) = 0' passed the check and failed at estimation without naming the line
+        ("factor f: a, b, c\nfix variance(f) = 0\n", 2, 5, "variance(f) is fixed to 0: a factor without variance "
+                                                         "measures nothing"),
         ("factor f: a, b, c\nfix variance(a) = 1\nfix variance(b) = 2\nequal variance(a), variance(b)\n", 4, 7, "fixed to different values"),
         ("factor f: a, b, c\nequal loading(f, b), variance(c)\n", 2, 7, "one kind"),
         ("factor f: a, b, c\ncovary a, b\nuncorrelated a, b\n", 3, 14, "no statement is needed"),
