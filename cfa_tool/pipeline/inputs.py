@@ -336,11 +336,32 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     with odd_values_named(loaded):
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                        ordinal_estimator, design), ids_by_row_number(ids, frame))
+    reference_group_applies(result, reference_group)
     result = with_missing_reading(with_odd_values(result, loaded, group), loaded, missing_codes)
     if spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         result = with_same_answer_rows(result, _labelled(frame, group), spec, ids_by_row_number(ids, frame))
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
+
+
+def reference_group_applies(results, reference_group: str | None) -> None:
+    """A reference group given for fits in groups in none of which it sets anything (every group's parameters free
+    or fixed alike: the factor means fixed at zero in every group, as a configural model has them) is an option
+    that cannot apply: an error, not a silently reordered report.  ``results``: one fit, or the fits compared."""
+    results = results if isinstance(results, (list, tuple)) else (results,)
+    if reference_group is None or not any(r.multigroup for r in results):
+        return
+    for result in results:
+        patterns: dict = {}
+        for r in result.estimates:
+            patterns.setdefault(r.group, set()).add((r.kind, r.variables, r.free, None if r.free else r.estimate))
+        if len({frozenset(p) for p in patterns.values()}) > 1:
+            return
+    raise OptionError(f"--reference-group {printable(reference_group)} sets nothing in "
+                      f"{'this model' if len(results) == 1 else 'these models'}: every group's factor means are fixed "
+                      f"at zero and no other parameter is set by the reference group; it applies when factor means "
+                      f"are estimated (intercepts held equal, as 'invariance scalar' or the invariance command hold "
+                      f"them): leave it out")
 
 
 def with_missing_reading(result, loaded: LoadedData, missing_codes=()):

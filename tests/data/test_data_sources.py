@@ -60,10 +60,11 @@ def test_a_row_filter_by_a_value_label_of_an_spss_file(tmp_path, hs_items):
     by_code = cfa_tool.fit(THREE_FACTORS, path, keep=["school = 1.0"])  # a number still compares with the codes
     assert by_code.n_obs == 145
     # groups by the labelled column are named by its labels, and the reference group can be given by its label
-    grouped = cfa_tool.fit(THREE_FACTORS, path, group="school", reference_group="Pasteur")
+    scalar = THREE_FACTORS + "invariance scalar\n"  # factor means estimated: the reference group sets them
+    grouped = cfa_tool.fit(scalar, path, group="school", reference_group="Pasteur")
     assert [g.label for g in grouped.groups] == ["Pasteur", "Grant-White"]
     same = data.assign(school=hs_items["school"])  # the same rounded numbers, with the labels as text
-    assert grouped.fit.chi_square == pytest.approx(cfa_tool.fit(THREE_FACTORS, same, group="school",
+    assert grouped.fit.chi_square == pytest.approx(cfa_tool.fit(scalar, same, group="school",
                                                                 reference_group="Pasteur").fit.chi_square, rel=1e-6)
     assert ("the group column 'school' holds codes with value labels in the data file; its groups are named by those "
             "labels (1 as 'Grant-White', 2 as 'Pasteur')") in grouped.warnings
@@ -72,7 +73,7 @@ def test_a_row_filter_by_a_value_label_of_an_spss_file(tmp_path, hs_items):
     path2 = tmp_path / "hs_codes_reversed.sav"
     pyreadstat.write_sav(data, str(path2), variable_value_labels={"school": {1: "West", 2: "East"}})
     assert [g.label for g in cfa_tool.fit(THREE_FACTORS, path2, group="school").groups] == ["West", "East"]
-    by_code = cfa_tool.fit(THREE_FACTORS, path2, group="school", reference_group="2")
+    by_code = cfa_tool.fit(scalar, path2, group="school", reference_group="2")
     assert [g.label for g in by_code.groups] == ["East", "West"]
 
 

@@ -8,6 +8,7 @@ import pandas as pd
 import pytest
 
 import cfa_tool
+from cfa_tool.errors import OptionError
 from cfa_tool.data.labels import label_notes
 
 MODEL = "factor f: y1, y2, y3, y4\n"
@@ -66,7 +67,7 @@ def test_ordinal_and_invariance_paths_say_it_too(spaced):
 
 
 def test_a_reference_group_is_read_as_the_labels_are(spaced):
-    fitted = cfa_tool.fit(MODEL, spaced, group="area", reference_group="south ")
+    fitted = cfa_tool.fit(MODEL + "invariance scalar\n", spaced, group="area", reference_group="south ")
     assert fitted.groups[0].label == "south"
 
 
@@ -141,3 +142,15 @@ def test_labels_that_differ_only_in_case_are_named_first_and_kept_apart(spaced):
     assert any(p.kind is ProblemKind.GROUP_LABELS_BY_CASE for p in cfa_tool.check(MODEL, cased, group="area").problems)
     assert said in invariance(MODEL, cased, "area").warnings[0]
     assert not any(p.kind is ProblemKind.GROUP_LABELS_BY_CASE for p in cfa_tool.fit(MODEL, spaced, group="area").problems)
+
+
+def test_a_reference_group_that_sets_nothing_is_an_error(spaced):
+    """Without equal intercepts every group's factor means are fixed at zero, so a reference group sets nothing
+    (hostile trial 9: it was accepted and only reordered the groups); fit and compare refuse it."""
+    with pytest.raises(OptionError, match="--reference-group south sets nothing in this model"):
+        cfa_tool.fit(MODEL, spaced, group="area", reference_group="south")
+    with pytest.raises(OptionError, match="sets nothing in these models"):
+        cfa_tool.compare([MODEL, MODEL + "covary y1, y2\n"], spaced, group="area", reference_group="south")
+    scalar = cfa_tool.fit(MODEL + "invariance scalar\n", spaced, group="area", reference_group="south")
+    means = [r for r in scalar.estimates if r.kind == "mean"]
+    assert all(not r.free for r in means if r.group == "south") and any(r.free for r in means if r.group != "south")
