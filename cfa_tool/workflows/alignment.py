@@ -608,7 +608,7 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
     seed = check.seed(seed)
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
-    notes = list(notes) + ([SCALE_SET_ASIDE] if spec.scaling else [])
+    notes = list(notes)
     spec = configural_spec(continuous_only(spec, "align"))
     loaded = analysed_odd_values(loaded, spec, group)  # values that look like no answers: named first
     with blas_threads_for(len(spec.observed_names)), odd_values_named(loaded):  # one thread: small matrices (numerics.threads)
@@ -619,11 +619,6 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
         return result
     data = replace(result.configural.data, row_filters=loaded.row_filters, rows_in_file=len(loaded.read_frame))
     return replace(result, configural=replace(result.configural, data=data))
-
-
-SCALE_SET_ASIDE = ("the model's 'scale' statements do not apply here: alignment fits the configural model with every "
-                   "factor's variance 1 and mean 0 in every group and reports the groups' means and variances on the "
-                   "reference group's scale")
 
 
 def _align(spec: Spec, frame: pd.DataFrame, source: str, group: str, reference_group: str | None,
@@ -722,6 +717,11 @@ def configural_spec(spec: Spec) -> Spec:
                                  f"'{seen[item.text]}' and '{factor.name.text}'", item.location,
                                  spec.source_line(item.location))
             seen[item.text] = factor.name.text
+    if spec.scaling:  # an option that cannot apply is an error, as the other statements here are
+        where = spec.scaling[0].location
+        raise ModelError("alignment scales every factor by its variance (1 and mean 0 in every group of the configural "
+                         "model) and reports the groups' means and variances on the reference group's scale, so a "
+                         "'scale' statement cannot apply; remove it", where, spec.source_line(where))
     settings = [r for s in spec.fixed for r in s.refs] + list(spec.freed) + [r for refs in spec.equal for r in refs]
     for ref in settings:
         if ref.group is not None:  # the pooled start and every group's configural fit share one model
