@@ -30,7 +30,9 @@ do not all meet at one point.
 
 from __future__ import annotations
 
+import enum
 import math
+import textwrap
 from dataclasses import dataclass, field
 
 from cfa_tool.reporting.escape import html_text as esc
@@ -94,34 +96,46 @@ def _label(x: float, y: float, text: str, size: int = 11, anchor: str = "middle"
 
 
 BLOCK_LOADING_DRAWN = 0.30  # rotated loadings of exploratory blocks drawn from this size on (common practice)
-LEGEND = ("Standardized values. Ellipses: factors; rectangles: observed items; circles: residual terms (share of "
-          "variance not explained); dashed arrows: loadings fixed to set a factor's scale; curved double arrows: "
-          "correlations (listed above the drawing instead when it is drawn in rows of factors, as are the loadings of "
-          "the factors drawn apart above the rows).")
-BLOCK_LEGEND = "Exploratory blocks: their rotated loadings of .30 or more in absolute value are drawn."
+BLOCK_LEGEND = "exploratory blocks: their rotated loadings of .30 or more in absolute value are drawn"
+LEGEND_LINE = 95  # characters in a line of a standalone file's legend
+class Drawn(enum.Enum):
+    """Parts a drawing may hold that its legend explains only when they are there; ``value`` is the legend's words."""
 
-METHOD_LEGEND = "Grey ellipses: method factors (a way of answering, not a trait)."
+    FIXED_LOADING = "dashed arrows: loadings fixed to set a factor's scale"
+    ARC = "curved double arrows: correlations"
+    LISTED_CORRELATION = "correlations that would cross the drawing are listed above it instead of drawn"
+    LISTED_LOADING = "loadings whose arrows would cross a row of items are listed above the drawing"
+    DISTURBANCE = "a circle beside a factor: the share of its variance the factors above it do not explain"
+    PROBLEM = "red: a value that makes the solution impossible or doubtful (see the report)"
 
 
-def legend_text(result) -> str:
-    """The legend under a diagram in a report: ``LEGEND`` and, when the model has them, what grey ellipses mean."""
-    return LEGEND + (" " + METHOD_LEGEND if _method_factors(result) else "")
+BASE_LEGEND = ("Standardized values. Ellipses: factors; rectangles: observed items; circles under or beside items: "
+               "residual terms (share of variance not explained)")
+METHOD_LEGEND = "grey ellipses: method factors (a way of answering, not a trait)"
 
 
-def legend_lines(result) -> list[str]:
-    """What the shapes, lines and colours of ``result``'s diagram mean, in lines for a standalone file."""
-    lines = ["Standardized values. Ellipses: factors; rectangles: observed items;",
-             "circles: residual terms (share of variance not explained);",
-             "dashed arrows: loadings fixed to set a factor's scale; curved double arrows: correlations",
-             "(listed above the drawing instead when it is drawn in rows of factors,",
-             "as are the loadings of the factors drawn apart above the rows)."]
+def legend_parts(result, drawn: frozenset[Drawn]) -> list[str]:
+    """What the shapes, lines and colours of ``result``'s drawings mean, one clause for each part ``drawn`` holds
+    (never a part they do not show)."""
+    parts = [BASE_LEGEND] + [d.value for d in Drawn if d in drawn and d is not Drawn.PROBLEM]
     if _method_factors(result):
-        lines.append(METHOD_LEGEND)
+        parts.append(METHOD_LEGEND)
     if getattr(result, "exploratory", ()):
-        lines.append(BLOCK_LEGEND)
-    if getattr(result, "problems", ()):
-        lines.append("Red: a value that makes the solution impossible or doubtful (see the report).")
-    return lines
+        parts.append(BLOCK_LEGEND)
+    return parts + ([Drawn.PROBLEM.value] if Drawn.PROBLEM in drawn else [])
+
+
+def legend_text(result, drawn: frozenset[Drawn]) -> str:
+    """The legend under a diagram in a report, as one sentence."""
+    return "; ".join(legend_parts(result, drawn)) + "."
+
+
+def legend_lines(result, drawn: frozenset[Drawn]) -> list[str]:
+    """The legend of a standalone file, in lines (the last one red when a part is drawn red)."""
+    parts = legend_parts(result, drawn)
+    problem = parts.pop() if Drawn.PROBLEM in drawn else None
+    lines = textwrap.wrap("; ".join(parts) + ".", LEGEND_LINE)
+    return lines + ([problem[0].upper() + problem[1:] + "."] if problem else [])
 
 
 def _method_factors(result) -> frozenset[str]:
@@ -404,24 +418,30 @@ def path_diagram(result, group: int = 0, legend: bool = False) -> str:
     return _document(result, [group], legend)
 
 
+def diagram_with_legend(result, group: int = 0) -> tuple[str, str]:
+    """Group ``group``'s drawing (SVG text) and the legend a report puts under it: the parts it shows, only."""
+    drawing = _draw(result, group)
+    return _document(result, [group], False, [drawing]), legend_text(result, drawing[3])
+
+
 def diagram_file(result) -> str:
     """The diagram a standalone file holds: every group's drawing, one under the other, each named, with the
     legend once at the bottom."""
     return _document(result, list(range(len(result.groups))), legend=True)
 
 
-def _document(result, groups: list[int], legend: bool) -> str:
-    drawings = [_draw(result, g) for g in groups]
-    lines = legend_lines(result) if legend else []
+def _document(result, groups: list[int], legend: bool, drawings: list | None = None) -> str:
+    drawings = drawings or [_draw(result, g) for g in groups]
+    lines = legend_lines(result, frozenset().union(*(d for *_, d in drawings))) if legend else []
     key = [(short, name) for name, short in item_labels(result).items()]
     indent = TEXT_EM * LIST_SIZE * (max((len(short) for short, _ in key), default=0) + 1)  # from a label to its name
     key_column = indent + TEXT_EM * LIST_SIZE * max((len(name) for _, name in key), default=0) + 30  # with a gap
-    width = max([w for w, _, _ in drawings] + [2 * MARGIN + TEXT_EM * 11 * len(line) for line in lines]
+    width = max([w for w, *_ in drawings] + [2 * MARGIN + TEXT_EM * 11 * len(line) for line in lines]
                 + ([2 * MARGIN + key_column] if key else []))
     key_columns = max(1, int((width - 2 * MARGIN) // key_column)) if key else 1
     key_rows = math.ceil(len(key) / key_columns)
     key_height = 18 + 16 * key_rows + 10 if key else 0
-    height = sum(h for _, h, _ in drawings) + key_height + (10 + 18 * len(lines) if lines else 0)
+    height = sum(h for _, h, *_ in drawings) + key_height + (10 + 18 * len(lines) if lines else 0)
     labels = [result.groups[g].label for g in groups]
     title = esc(result.model_name) + ("" if labels == [None] else " — group " + ", ".join(esc(str(x)) for x in labels))
     parts = [
@@ -435,7 +455,7 @@ def _document(result, groups: list[int], legend: bool) -> str:
     if legend:
         parts.append(f'<rect width="{width:.0f}" height="{height:.0f}" fill="#ffffff"/>')
     y = 0.0
-    for _, h, body in drawings:
+    for _, h, body, _ in drawings:
         parts.append(f'<g transform="translate(0,{y:.0f})">')
         parts.extend(body)
         parts.append("</g>")
@@ -449,16 +469,16 @@ def _document(result, groups: list[int], legend: bool) -> str:
                          f'font-weight="bold">{esc(short)}</text>')
             parts.append(f'<text class="key" x="{x + indent:.1f}" y="{line_y:.1f}" font-size="{LIST_SIZE}">{esc(name)}</text>')
         y += key_height
-    problems = getattr(result, "problems", ())
+    red = any(Drawn.PROBLEM in d for *_, d in drawings)
     for k, line in enumerate(lines):
-        colour = f' fill="{PROBLEM_COLOUR}"' if problems and k == len(lines) - 1 else ""
+        colour = f' fill="{PROBLEM_COLOUR}"' if red and k == len(lines) - 1 else ""
         parts.append(f'<text class="legend" x="{MARGIN:.1f}" y="{y + 16 + 18 * k:.1f}" font-size="11"{colour}>{esc(line)}</text>')
     parts.append("</svg>")
     return "\n".join(parts) + "\n"
 
 
-def _draw(result, group: int) -> tuple[float, float, list[str]]:
-    """(width, height, SVG elements) of one group's drawing."""
+def _draw(result, group: int) -> tuple[float, float, list[str], frozenset[Drawn]]:
+    """(width, height, SVG elements, the parts its legend explains) of one group's drawing."""
     label = result.groups[group].label
     rows = [r for r in result.estimates if r.group == label] + _block_rows(result)
     problems = getattr(result, "problems", ())
@@ -475,6 +495,7 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
     centre, y_of = lay.centre, lay.y_of
     methods = _method_factors(result)
     parts: list[str] = []
+    drawn: set[Drawn] = set()
     head = 26.0 if label is not None else 0.0
     if label is not None:  # the group is named on its own diagram
         parts.append(f'<text class="group-name" x="{MARGIN:.1f}" y="20" font-size="15" font-weight="bold">'
@@ -483,6 +504,7 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
     y = lay.table_top
     for entries in _lists(lay):
         loadings = len(entries[0]) == 2
+        drawn.add(Drawn.LISTED_LOADING if loadings else Drawn.LISTED_CORRELATION)
         title = "Loadings not drawn as arrows" if loadings else "Correlations not drawn as arcs"
         parts.append(f'<text class="table-title" x="{MARGIN:.1f}" y="{y + 2:.1f}" font-size="{LIST_SIZE}" '
                      f'font-weight="bold">{title}</text>')
@@ -510,6 +532,8 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
         else:
             x2, y2 = centre[target], y_of[target] - ELLIPSE_RY
         dashed = ' stroke-dasharray="5,4"' if not r.free else ""
+        if not r.free:
+            drawn.add(Drawn.FIXED_LOADING)
         parts.append(f'<line class="loading" x1="{x1:.1f}" y1="{y1:.1f}" x2="{x2:.1f}" y2="{y2:.1f}" stroke="#333" '
                      f'stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
         text = unit(r.standardized, 2)
@@ -531,6 +555,7 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
             y = min(ya, yb) if not below else max(ya, yb)
             bend = lift if below else -lift
             parts.append(_arc(xa, ya, xb, yb, y + bend * 2, "covariance", bad))
+            drawn.add(Drawn.ARC)
             label_y = (ya + yb) / 4 + (y + bend * 2) / 2 + (14 if below else -4)  # apex of the curve
             parts.append(_label((xa + xb) / 2, label_y, unit(r.standardized, 2), problem=bad))
         elif r.kind == "residual_covariance" and lay.band_of[r.variables[0]] == lay.band_of[r.variables[1]]:
@@ -540,6 +565,7 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
             drop = _drop(lay.drop_level[r.variables])
             bad = flagged(r.kind, r.variables)
             parts.append(_arc(xa, y, xb, y, y + drop * 2, "residual-covariance", bad))
+            drawn.add(Drawn.ARC)
             parts.append(_label((xa + xb) / 2, y + drop + 4, unit(r.standardized, 2), problem=bad))  # on the arc's lowest point
     # the items of a factor that go on in a later band: named over them, their loadings listed above
     for f, items in lay.continued:
@@ -564,6 +590,7 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
             bad = flagged(r.kind, r.variables)
             parts.append(f'<circle class="residual{" problem" if bad else ""}" cx="{cx:.1f}" cy="{cy:.1f}" r="{RESIDUAL_R}" '
                          f'fill="#fff" {stroke(r.kind, r.variables)}/>')
+            drawn.add(Drawn.DISTURBANCE)
             parts.append(f'<line x1="{cx - RESIDUAL_R:.1f}" y1="{cy:.1f}" x2="{centre[f] + rx:.1f}" y2="{cy:.1f}" '
                          f'stroke="#333" marker-end="url(#head)"/>')
             parts.append(_label(cx, cy - RESIDUAL_R - 5, unit(r.standardized, 2), problem=bad))
@@ -592,7 +619,9 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
             else:
                 parts.append(_label(cx + RESIDUAL_R + 3, cy + 4, text, size=10, anchor="start", problem=bad))
     parts.append("</g>")
-    return lay.width, lay.height + head, parts
+    if any(PROBLEM_COLOUR in part for part in parts):
+        drawn.add(Drawn.PROBLEM)
+    return lay.width, lay.height + head, parts, frozenset(drawn)
 
 
 def _free_spot(spots: list[tuple[float, float]], text: str, placed: list, size: int = 11) -> tuple[float, float]:

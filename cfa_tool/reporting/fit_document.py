@@ -46,14 +46,9 @@ def fit_tables(result) -> list[ReportTable]:
 
 def _path_diagram(result, k: int) -> tuple[str, str]:
     """Group ``k``'s path diagram (SVG text) and the note under it, drawn when a view shows it."""
-    from cfa_tool.reporting.diagram import BLOCK_LEGEND, legend_text, path_diagram
+    from cfa_tool.reporting.diagram import diagram_with_legend
 
-    note = legend_text(result)
-    if getattr(result, "exploratory", ()):
-        note += " " + BLOCK_LEGEND
-    if result.problems:
-        note += " Elements in red show a problem of the solution."
-    return path_diagram(result, k), note
+    return diagram_with_legend(result, k)
 
 
 def _two_factor_higher_order(result) -> tuple[str, ...]:

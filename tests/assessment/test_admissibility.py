@@ -102,6 +102,7 @@ def test_html_banner_comes_first_and_marks_rows_and_diagram(heywood):
     assert body.index('id="problems"') < body.index("<h1>") < body.index("Summary for a paper")
     assert any('<circle class="residual problem"' in svg for svg in figure_svgs(page))
     assert '<tr class="problem">' in page
+    assert "red: a value that makes the solution impossible or doubtful" in page  # the legend under the drawing
 
 
 def test_notebook_view_shows_the_banner_and_the_rows_used(heywood):
