@@ -562,8 +562,9 @@ def replication_report(replications) -> Report:
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
     split = tuple(dict.fromkeys(_split_sentence(rep.split) for rep in reps if rep.split is not None))
+    read = tuple(dict.fromkeys(n for rep in reps for n in getattr(rep, "notes", ())))  # as fit says them
     return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), split, tuple(tables), tuple(notes),
-                  (GUIDE_NOTE, HIGH_STAKES_NOTE))
+                  (GUIDE_NOTE, HIGH_STAKES_NOTE), warnings=read)
 
 
 # ---------------------------------------------------------------- bootstrap

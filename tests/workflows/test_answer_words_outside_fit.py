@@ -1,0 +1,89 @@
+"""The 'answers' statement in the commands other than fit: each codes the words as fit does and says so.
+
+The reference of every figure here is the same analysis of the same answers stored as numbers (with -99 where the
+words file holds '-99'), whose fits are checked against published analyses and semopy elsewhere; the data are the
+invented rider survey of tests/data/test_answer_words.py (a fictional transit agency, fixed seed).
+"""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+
+import cfa_tool
+from cfa_tool.cli import main
+from tests.data.test_answer_words import ITEMS, MODEL, PLAIN, STATEMENT, _answers, _as_words
+
+CODING = ("answers recorded as words were coded 1 (Strongly disagree) to 5 (Strongly agree) in every item, as the "
+          "'answers' statement on line 3 says")
+
+
+@pytest.fixture(scope="module")
+def coded(tmp_path_factory):
+    """A file of words with '-99' (no answer) in one cell, the same answers as numbers, and a second sample."""
+    folder = tmp_path_factory.mktemp("coded")
+    numbers = _answers()
+    numbers.loc[10, "seat"] = -99.0
+    words = _as_words(_answers())
+    words.loc[10, "seat"] = "-99"
+    numbers.to_csv(folder / "numbers.csv", index=False)
+    words.to_csv(folder / "words.csv", index=False)
+    _as_words(_answers(seed=5)).to_csv(folder / "words2.csv", index=False)
+    _answers(seed=5).to_csv(folder / "numbers2.csv", index=False)
+    (folder / "words.cfa").write_text(MODEL)
+    return folder
+
+
+def test_split_half_reads_missing_codes_among_words_as_fit_does_and_says_how_it_coded(coded, tmp_path, capsys):
+    # before: the halves were coded without --missing-codes ('-99' among words was an error) and said nothing
+    words = cfa_tool.split_half(MODEL, coded / "words.csv", seed=3, missing_codes=(-99,))
+    numbers = cfa_tool.split_half(PLAIN, coded / "numbers.csv", seed=3, missing_codes=(-99,))
+    for a, b in zip(words, numbers):
+        assert abs(a.calibration_result.fit.chi_square - b.calibration_result.fit.chi_square) < 1e-10
+        assert abs(a.tight_chi_square - b.tight_chi_square) < 1e-8
+        assert CODING in a.notes and not any("recorded as words" in n for n in b.notes)
+    out = tmp_path / "split.json"
+    assert main(["replicate", str(coded / "words.cfa"), "--data", str(coded / "words.csv"), "--missing-codes=-99",
+                 "--json", str(out)]) == 0
+    report = capsys.readouterr().out
+    assert "Answers recorded as words were coded 1 (Strongly disagree) to 5" in report
+    assert "(-99) and was read as no answer (seat 1)" in report
+    first = json.loads(out.read_text())["replications"][0]
+    assert first["answer_coding"][0]["items"] == list(ITEMS)
+    assert CODING in first["notes"]
+
+
+def test_replication_on_new_data_codes_both_files_and_says_so(coded):
+    words = cfa_tool.replicate(MODEL, coded / "words2.csv", coded / "words.csv", missing_codes=(-99,))
+    numbers = cfa_tool.replicate(PLAIN, coded / "numbers2.csv", coded / "numbers.csv", missing_codes=(-99,))
+    assert abs(words.tight_chi_square - numbers.tight_chi_square) < 1e-8
+    assert abs(words.cvi - numbers.cvi) < 1e-10
+    assert words.notes.count(CODING) == 1  # one coding, said once for both files
+    assert "answer_coding" in words.to_dict() and "answer_coding" not in numbers.to_dict()
+
+
+def test_compare_codes_each_later_models_items_once_with_the_missing_codes(coded, tmp_path):
+    # an item only the second and third models have ('extra'), with '-99' in it: before, the third model coded the
+    # second's coded numbers again (an error) and the later models' words were coded without --missing-codes
+    rng = np.random.default_rng(3)
+    numbers = _answers()
+    numbers["extra"] = numbers["info"].where(rng.random(len(numbers)) < .6, numbers["punctual"])
+    numbers.loc[20, "extra"] = -99.0
+    words = _as_words(numbers)
+    words["extra"] = numbers["extra"].map({**{k: v for k, v in zip(range(1, 6), _WORDS)}, -99.0: "-99"})
+    numbers.to_csv(tmp_path / "numbers.csv", index=False)
+    words.to_csv(tmp_path / "words.csv", index=False)
+    base = "factor comfort: seat, clean, quiet\nfactor service: driver, info, punctual\n"
+    second = "factor comfort: seat, clean, quiet\nfactor service: driver, info, punctual, extra\n"
+    third = "factor comfort: seat, clean, quiet, extra\nfactor service: driver, info, punctual\n"
+    coded_fits = cfa_tool.compare([base + STATEMENT, second + STATEMENT, third + STATEMENT], tmp_path / "words.csv",
+                                  missing_codes=(-99,))
+    number_fits = cfa_tool.compare([base, second, third], tmp_path / "numbers.csv", missing_codes=(-99,))
+    for w, n in zip(coded_fits.results, number_fits.results):
+        assert abs(w.fit.chi_square - n.fit.chi_square) < 1e-8
+    assert any("read as no answer (extra 1)" in note for note in coded_fits.notes)
+
+
+_WORDS = ("Strongly disagree", "Disagree", "Neither agree nor disagree", "Agree", "Strongly agree")
