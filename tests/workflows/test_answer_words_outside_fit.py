@@ -87,3 +87,22 @@ def test_compare_codes_each_later_models_items_once_with_the_missing_codes(coded
 
 
 _WORDS = ("Strongly disagree", "Disagree", "Neither agree nor disagree", "Agree", "Strongly agree")
+
+
+def test_the_one_reader_of_saved_fits_reads_their_coding_of_answer_words(coded, tmp_path):
+    from cfa_tool.errors import OptionError
+    from cfa_tool.workflows.factor_scores import read_saved_fit
+
+    fitted = cfa_tool.fit(MODEL, coded / "words.csv", missing_codes=(-99,))
+    saved = tmp_path / "fit.json"
+    assert main(["fit", str(coded / "words.cfa"), "--data", str(coded / "words.csv"), "--missing-codes=-99",
+                 "--json", str(saved)]) == 0
+    # before: read_saved_fit left the coding out of the fit's data summary (scores read it from the JSON apart)
+    assert read_saved_fit(saved).data.answer_coding == fitted.data.answer_coding
+    assert read_saved_fit(saved).data.answer_coding[0][1][0] == ("Strongly disagree", None, 1.0)
+    payload = json.loads(saved.read_text())
+    payload["data"]["answer_coding"] = [{"items": ["seat"], "answers": [{"word": "Agree"}]}]  # no code: changed
+    broken = tmp_path / "broken.json"
+    broken.write_text(json.dumps(payload))
+    with pytest.raises(OptionError, match="broken.json'?: the coding of answer words .* cannot be read"):
+        read_saved_fit(broken)
