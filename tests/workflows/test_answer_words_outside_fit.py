@@ -49,7 +49,7 @@ def test_split_half_reads_missing_codes_among_words_as_fit_does_and_says_how_it_
                  "--json", str(out)]) == 0
     report = capsys.readouterr().out
     assert "Answers recorded as words were coded 1 (Strongly disagree) to 5" in report
-    assert "(-99) and was read as no answer (seat 1)" in report
+    assert "(-99) was read as no answer (seat 1)" in report
     first = json.loads(out.read_text())["replications"][0]
     assert first["answer_coding"][0]["items"] == list(ITEMS)
     assert CODING in first["notes"]
@@ -106,3 +106,30 @@ def test_the_one_reader_of_saved_fits_reads_their_coding_of_answer_words(coded, 
     broken.write_text(json.dumps(payload))
     with pytest.raises(OptionError, match="broken.json'?: the coding of answer words .* cannot be read"):
         read_saved_fit(broken)
+
+
+def test_cells_read_as_no_answer_are_said_in_one_shape_by_the_reader_and_the_coding(tmp_path):
+    # one writer of the note (data.missing_codes): the coding of words named every column, the reader eight and a
+    # count of the rest; both now name eight and count the rest, in the same words
+    rng = np.random.default_rng(11)
+    items = [f"q{k}" for k in range(1, 11)]
+    traits = rng.normal(size=(200, 1))
+    numbers = np.digitize(.7 * traits + rng.normal(0, .7, (200, 10)), [-1.2, -.4, .4, 1.2]) + 1
+    scale = ("Strongly disagree", "Disagree", "Neither agree nor disagree", "Agree", "Strongly agree")
+    words = [[scale[v - 1] for v in row] for row in numbers]
+    for k in range(10):
+        words[k][k] = "-99"
+        numbers[k, k] = -99
+    import pandas as pd
+
+    pd.DataFrame(words, columns=items).to_csv(tmp_path / "words.csv", index=False)
+    pd.DataFrame(numbers, columns=items).to_csv(tmp_path / "numbers.csv", index=False)
+    model = "factor f: " + ", ".join(items) + "\n"
+    coded = cfa_tool.fit(model + STATEMENT, tmp_path / "words.csv", missing_codes=(-99,))
+    read = cfa_tool.fit(model, tmp_path / "numbers.csv", missing_codes=(-99,))
+    assert abs(coded.fit.chi_square - read.fit.chi_square) < 1e-8  # the same cells read as no answer
+    listed = "(q1 1, q2 1, q3 1, q4 1, q5 1, q6 1, q7 1, q8 1 and 2 more columns)"
+    assert ("numbers.csv: 10 cells holding a code given with --missing-codes (-99) were read as no answer "
+            + listed) in read.warnings
+    assert ("words.csv: 10 cells of the items coded by an 'answers' statement holding a code given with "
+            "--missing-codes (-99) were read as no answer " + listed) in coded.warnings
