@@ -133,3 +133,54 @@ def test_cells_read_as_no_answer_are_said_in_one_shape_by_the_reader_and_the_cod
             + listed) in read.warnings
     assert ("words.csv: 10 cells of the items coded by an 'answers' statement holding a code given with "
             "--missing-codes (-99) were read as no answer " + listed) in coded.warnings
+
+
+def test_simulate_writes_the_statements_words_which_read_back_through_it(tmp_path):
+    from cfa_tool.workflows.simulation import simulate
+
+    # reference: the same population cut into five equally likely categories as numbers (--categories 5)
+    words = simulate(MODEL, 300, seed=4).frame
+    numbers = simulate(PLAIN, 300, seed=4, categories=5).frame
+    scale = {w: k for k, w in enumerate(_WORDS, start=1)}
+    assert set(words.stack().unique()) <= set(_WORDS)
+    assert (words.apply(lambda c: c.map(scale)).astype(int) == numbers.astype(int)).all().all()
+    # before: simulate wrote continuous numbers, which the model file's statement refused to read
+    path = tmp_path / "simulated.csv"
+    out = tmp_path / "sim.json"
+    (tmp_path / "m.cfa").write_text(MODEL)
+    assert main(["simulate", str(tmp_path / "m.cfa"), "--n", "300", "--seed", "4", "--output", str(path), "--json",
+                 str(out)]) == 0
+    saved = json.loads(out.read_text())
+    assert saved["written_as_words"] == list(ITEMS) and saved["answer_coding"][0]["items"] == list(ITEMS)
+    assert any("written as the words of the 'answers' statement on line 3" in line for line in saved["report"]["lines"])
+    back = cfa_tool.fit(MODEL, path)
+    numbers.to_csv(tmp_path / "numbers.csv", index=False)
+    assert abs(back.fit.chi_square - cfa_tool.fit(PLAIN, tmp_path / "numbers.csv").fit.chi_square) < 1e-10
+
+
+def test_a_number_of_categories_other_than_the_statements_is_an_error_naming_it():
+    from cfa_tool.errors import ModelError
+    from cfa_tool.workflows.simulation import simulate
+
+    with pytest.raises(ModelError, match="--categories 4 cuts 'seat' into 4 categories, and the 'answers' statement on "
+                                         "line 3 lists 5 codes for it") as caught:
+        simulate(MODEL, 100, categories=4)
+    assert caught.value.location.line == 3
+
+
+def test_power_simulation_takes_the_statements_categories_for_ordinal_items_and_refuses_continuous_ones(tmp_path,
+                                                                                                     capsys):
+    from cfa_tool.workflows.montecarlo import monte_carlo_power
+
+    ordinal = "ordinal " + ", ".join(ITEMS) + "\n"
+    # reference: the same ordinal model cut into five categories by --categories 5 (before: an error asking for it)
+    stated = monte_carlo_power(MODEL + ordinal, 200, replications=3, seed=2, workers=1)
+    given = monte_carlo_power(PLAIN + ordinal, 200, replications=3, seed=2, workers=1, categories=5)
+    assert [p.mean_estimate for p in stated.parameters] == [p.mean_estimate for p in given.parameters]
+    # items the model fits as continuous: the statement's categories cannot apply (before: silently simulated normal)
+    (tmp_path / "m.cfa").write_text(MODEL)
+    assert main(["power-simulation", str(tmp_path / "m.cfa"), "--n", "200", "--replications", "3"]) == 2
+    error = capsys.readouterr().err
+    assert "m.cfa:3:1: the 'answers' statement on line 3 records the answers of 'seat' in 5 categories, and " \
+           "power-simulation simulates continuous answers" in error
+    assert error.count("\n") <= 3  # one line, with the model's line and a caret under it
