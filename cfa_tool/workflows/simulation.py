@@ -435,7 +435,7 @@ def answer_categories(spec: Spec) -> dict[str, tuple[float, ...]]:
 def _coding_error(spec: Spec, item: str, what: str) -> ModelError:
     """An error naming the 'answers' statement that covers ``item`` (its line, with the line shown)."""
     coding = spec.answer_codings()[item]
-    return ModelError(what.format(origin=coding.origin), coding.location, spec.source_line(coding.location))
+    return ModelError(what.replace("{origin}", coding.origin), coding.location, spec.source_line(coding.location))
 
 
 def with_categories(population: Population, spec: Spec, categories: int | None,
@@ -465,8 +465,9 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
         for x, codes in coded.items():
             if x in thresholds and len(thresholds[x]) + 1 != len(codes):
                 raise _coding_error(spec, x, f"the earlier fit in {population.fitted_from} has "
-                                             f"{len(thresholds[x]) + 1} answer categories of '{x}', and {{origin}} lists "
-                                             f"{len(codes)} codes for it; give the model file the fit was made with")
+                                             f"{len(thresholds[x]) + 1} answer categories of '{printable(x)}', and "
+                                             f"{{origin}} lists {len(codes)} codes for it; give the model file the "
+                                             f"fit was made with")
         cut = set(thresholds)
     else:
         if categories is None:
@@ -478,10 +479,10 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
         for x in population.observed:
             if x in cut and x in coded:
                 if categories is not None and len(coded[x]) != categories:
-                    raise _coding_error(spec, x, f"--categories {categories} cuts '{x}' into {categories} categories, "
-                                                 f"and {{origin}} lists {len(coded[x])} codes for it; leave "
-                                                 f"--categories out (the statement gives the categories) or make "
-                                                 f"them agree")
+                    raise _coding_error(spec, x, f"--categories {categories} cuts '{printable(x)}' into "
+                                                 f"{categories} categories, and {{origin}} lists {len(coded[x])} "
+                                                 f"codes for it; leave --categories out (the statement gives the "
+                                                 f"categories) or make them agree")
                 thresholds[x] = equal_thresholds(len(coded[x]))
             elif x in cut:
                 thresholds[x] = equal_thresholds(categories)
@@ -489,11 +490,12 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
         if x in cut:
             continue
         if command != "simulate":
-            raise _coding_error(spec, x, f"{{origin}} records the answers of '{x}' in {len(codes)} categories, and "
-                                         f"{command} simulates continuous answers for the items the model does not "
-                                         f"declare ordinal; declare them ordinal (an 'ordinal' statement, or "
-                                         f"--categories {len(codes)}) to simulate answers in the statement's "
-                                         f"categories, or remove the statement for the power of continuous answers")
+            raise _coding_error(spec, x, f"{{origin}} records the answers of '{printable(x)}' in {len(codes)} "
+                                         f"categories, and {command} simulates continuous answers for the items "
+                                         f"the model does not declare ordinal; declare them ordinal (an 'ordinal' "
+                                         f"statement, or --categories {len(codes)}) to simulate answers in the "
+                                         f"statement's categories, or remove the statement for the power of "
+                                         f"continuous answers")
         thresholds[x] = equal_thresholds(len(codes))  # simulate writes the statement's words
     if set(thresholds) == set(population.thresholds or ()):  # nothing cut beyond the earlier fit's items
         return population

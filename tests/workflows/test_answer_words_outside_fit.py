@@ -184,3 +184,15 @@ def test_power_simulation_takes_the_statements_categories_for_ordinal_items_and_
     assert "m.cfa:3:1: the 'answers' statement on line 3 records the answers of 'seat' in 5 categories, and " \
            "power-simulation simulates continuous answers" in error
     assert error.count("\n") <= 3  # one line, with the model's line and a caret under it
+
+
+def test_errors_naming_the_statement_quote_names_with_braces_as_written():
+    # the statement's place is put into the message by name, never by str.format (braces in an item's name)
+    from cfa_tool.errors import ModelError
+    from cfa_tool.workflows.simulation import simulate
+
+    model = ('factor f: "a{1}", a2, a3\n'
+             'answers "No" = 0, "Sometimes" = 1, "Often" = 2\n')
+    with pytest.raises(ModelError, match=r"--categories 4 cuts 'a\{1\}' into 4 categories, and the 'answers' "
+                                         r"statement on line 2 lists 3 codes for it"):
+        simulate(model, 50, categories=4)
