@@ -14,8 +14,8 @@ import pandas as pd
 from dataclasses import replace
 
 from cfa_tool.data.moments import row_numbers
+from cfa_tool.data.missing_codes import missing_codes_note
 from cfa_tool.data.non_answers import says_no_answer
-from cfa_tool.input_files import base_name
 from cfa_tool.errors import DataError, Location, ModelError, OptionError, character_names, printable
 from cfa_tool.language.spec import AnswerCoding, AnswerWord, Name, Spec, answer_key
 from cfa_tool.numbers import number as strict_number
@@ -104,12 +104,8 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
         frame[item] = coded
     notes = answer_notes(spec, tuple(codings))
     if read_as_none:
-        total = sum(n for _, n in read_as_none)
-        given = ", ".join(f"{c:g}" for c in sorted(no_answer))
-        notes.append(f"{base_name(source)}: {total} {'cell' if total == 1 else 'cells'} of the items coded by an "
-                     f"'answers' statement held a code given with --missing-codes ({given}) and "
-                     f"{'was' if total == 1 else 'were'} read as no answer ("
-                     + ", ".join(f"{printable(x)} {n}" for x, n in read_as_none) + ")")
+        notes.append(missing_codes_note(source, missing_codes, read_as_none,
+                                        "of the items coded by an 'answers' statement"))
     return frame, notes
 
 

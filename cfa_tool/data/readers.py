@@ -21,6 +21,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.missing_codes import missing_codes_note
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
 from cfa_tool.errors import DataError, printable
 from cfa_tool.input_files import check_input_path, input_bytes, utf16_text
@@ -122,7 +123,7 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
     if missing_codes:
-        loaded = replace(loaded, notes=loaded.notes + (_missing_codes_note(path, missing_codes, read_as_none),))
+        loaded = replace(loaded, notes=loaded.notes + (missing_codes_note(path, missing_codes, read_as_none),))
     return loaded
 
 
@@ -208,19 +209,6 @@ def _plain_number(text: str) -> float | None:
         return None
     shown = str(int(value)) if value.is_integer() else repr(value)
     return value if text.strip() == shown else None
-
-
-def _missing_codes_note(path: Path, codes, read_as_none: list[tuple[str, int]]) -> str:
-    """What --missing-codes did, said with the data: how many cells of which columns it read as no answer (or that
-    no cell holds any of the codes, as a mistyped code would leave it)."""
-    given = ", ".join(f"{c:g}" if isinstance(c, (int, float)) else str(c) for c in codes)
-    if not read_as_none:
-        return f"{path.name}: no cell of numbers holds any of the codes given with --missing-codes ({given})"
-    total = sum(n for _, n in read_as_none)
-    shown = ", ".join(f"{column} {n}" for column, n in read_as_none[:8]) + (
-        f" and {len(read_as_none) - 8} more columns" if len(read_as_none) > 8 else "")
-    return (f"{path.name}: {total} {'cell' if total == 1 else 'cells'} holding a code given with --missing-codes "
-            f"({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})")
 
 
 def _composed_names(loaded: LoadedData) -> LoadedData:

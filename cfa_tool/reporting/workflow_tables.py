@@ -562,8 +562,9 @@ def replication_report(replications) -> Report:
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
     split = tuple(dict.fromkeys(_split_sentence(rep.split) for rep in reps if rep.split is not None))
+    read = tuple(dict.fromkeys(n for rep in reps for n in getattr(rep, "notes", ())))  # as fit says them
     return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), split, tuple(tables), tuple(notes),
-                  (GUIDE_NOTE, HIGH_STAKES_NOTE))
+                  (GUIDE_NOTE, HIGH_STAKES_NOTE), warnings=read)
 
 
 # ---------------------------------------------------------------- bootstrap
@@ -890,10 +891,33 @@ def population_report(simulated) -> Report:
     made = (f"{len(frame)} rows of {frame.shape[1]} variables (seed {simulated.seed})"
             + (f", ordinal with {simulated.categories} categories" if simulated.categories else "")
             + (f", {len(cut)} ordinal items cut at the fitted thresholds (answers 1 to k)"
-               if cut and not simulated.categories else "")
+               if cut and not simulated.categories and not population.equal_categories else "")
             + (f", {100 * simulated.missing:g}% of answers removed completely at random" if simulated.missing else "") + ".")
     carried = [] if simulated.missing else not_carried_line(population.not_carried, power=False)  # --missing: gaps
-    return Report(ResultKind.SIMULATE, "Simulated data", None, (made, line, *carried), (table,))
+    return Report(ResultKind.SIMULATE, "Simulated data", None, (made, *_worded_lines(simulated), line, *carried),
+                  (table,))
+
+
+def _worded_lines(simulated) -> list[str]:
+    """Which simulated items were written as the words of the model's 'answers' statements, and how."""
+    from cfa_tool.data.answer_words import coding_described
+
+    worded = getattr(simulated, "worded", ())
+    spec = simulated.population.spec
+    codings = spec.answer_codings()
+    lines = []
+    for coding in spec.answers:
+        items = [x for x in worded if codings.get(x) is coding]
+        if not items:
+            continue
+        which = "Every item is" if len(items) == len(spec.observed_names) else \
+            f"{len(items)} item{'s are' if len(items) > 1 else ' is'} ({names_text(items)})"
+        described = coding_described(tuple((a.word, a.number, a.code) for a in coding.answers if a.word is not None))
+        how = ("cut into equally likely categories" if simulated.population.equal_categories else
+               "cut at the fitted thresholds where the earlier fit has them, else into equally likely categories")
+        lines.append(f"{which} written as the words of {coding.origin}, {described} (the latent responses {how}), "
+                     f"so the file reads back with the same model file.")
+    return lines
 
 
 def population_parts(population) -> tuple[str, ReportTable]:
@@ -904,8 +928,8 @@ def population_parts(population) -> tuple[str, ReportTable]:
     entries = population.values()
     if population.fitted_from is not None:
         line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}"
-                + (" but the thresholds, which cut equally likely categories (--categories)"
-                   if population.equal_categories else "") + "; the items' means are "
+                + (" but the thresholds, which cut equally likely categories (as many as --categories or the "
+                   "'answers' statement gives)" if population.equal_categories else "") + "; the items' means are "
                 f"{population.means_from.value}"
                 + (", and its values are in standard-deviation units (a correlation matrix without standard "
                    "deviations)" if population.standard_units else "")

@@ -9,7 +9,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missing_handling, design_test, few_category_notes, load_spec, make_options, moments_for,
-                                      of_summary_statistics,
+                                      missing_codes_option, of_summary_statistics,
                                       odd_value_problems, odd_values_named, reference_group_applies, with_missing_reading,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_row_options, summary_source, with_design)
@@ -136,10 +136,12 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     refuse_different_codings(specs, names)
     _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
+    coded = set(specs[0].observed_names)  # items of the later models only, each once: their answer words as codes
     for spec in specs[1:]:
         check_columns(spec, list(frame.columns), source, loaded.sheet_hint())
-        coded = set(specs[0].observed_names)  # items of the later models only: their answer words as codes
-        frame, coding_notes = code_answer_words(spec, frame, source, tuple(x for x in spec.observed_names if x not in coded))
+        frame, coding_notes = code_answer_words(spec, frame, source, tuple(x for x in spec.observed_names if x not in coded),
+                                                missing_codes=missing_codes_option(missing_codes))  # as fit reads them
+        coded |= set(spec.observed_names)
         notes = list(notes) + coding_notes
     used = sorted({x for spec in specs for x in spec.observed_names})
     without_group = 0

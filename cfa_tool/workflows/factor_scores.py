@@ -585,6 +585,7 @@ def read_saved_fit(path) -> SavedFit:
     themselves (:func:`~cfa_tool.assessment.admissibility.saved_fit_problems`), and a row that cannot be read (as
     an estimate that is not a number) is named in an error."""
     from cfa_tool.assessment.admissibility import saved_fit_problems
+    from cfa_tool.data.answer_words import coding_from_json
     from cfa_tool.input_files import input_json
     from cfa_tool.model.saved_estimates import saved_rows
     from cfa_tool.pipeline.results import DataSummary
@@ -612,7 +613,8 @@ def read_saved_fit(path) -> SavedFit:
                               categories=categories if counts else (), not_given=not_given,
                               missing_codes=tuple(float(v) for v in d.get("missing_codes", ())),
                               ranges=tuple((float(d["answer_ranges"][x][0]), float(d["answer_ranges"][x][1]))
-                                           for x in d["variables"]) if d.get("answer_ranges") else ())
+                                           for x in d["variables"]) if d.get("answer_ranges") else (),
+                              answer_coding=coding_from_json(d.get("answer_coding"), source))
         model = payload["model"]
     except (ValueError, KeyError, TypeError, AttributeError):
         raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)") from None
@@ -721,14 +723,13 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
                          id_column: str | None = None, sheet: str | None = None, missing_codes=(), keep=()) -> ScoreResult:
     """Scores of the rows of ``data`` with the parameters of a fit saved as JSON (``fit --json``) of ``model``."""
     from cfa_tool.assessment.admissibility import refuse_inadmissible_saved_fit
-    from cfa_tool.data.answer_words import coding_from_json, with_saved_coding
+    from cfa_tool.data.answer_words import with_saved_coding
     from cfa_tool.pipeline import inputs as api
 
     saved = read_saved_fit(saved_path)
     refuse_unknown_scale(saved.data, f"the fit in '{printable(str(saved_path))}'")
     refuse_inadmissible_saved_fit(saved.payload, saved.problems, saved.source, "no factor scores are computed with it")
-    spec = with_saved_coding(api.load_spec(model), coding_from_json(saved.payload["data"].get("answer_coding"),
-                                                                    saved.source), saved.source)
+    spec = with_saved_coding(api.load_spec(model), saved.data.answer_coding, saved.source)  # the fit's coding
     chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")), standard_errors)
     models, labels = models_of_saved_fit(spec, saved)
     return _score_other_data(saved, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,

@@ -139,7 +139,7 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
         if n * p > check.MAX_SIMULATED_CELLS:
             raise OptionError(f"{n:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values per "
                               f"simulated data set; plan with a smaller sample size")
-    population = with_categories(population_from_spec(spec, population), spec, categories)
+    population = with_categories(population_from_spec(spec, population), spec, categories, "power-simulation")
     weighting = ordinal_estimator_option(ordinal_estimator, population.ordinal_items,
                                          "an 'ordinal' statement, --categories or an ordinal fit's --population-from")
     # one size keeps the seeds it always had; several take one stream per size from the same seed

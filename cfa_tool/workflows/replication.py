@@ -36,10 +36,10 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.model.parameters import one_group_only
-from cfa_tool.pipeline.inputs import (load_data, load_spec, make_options, odd_value_problems, odd_values_named,
-                                      refit_missing_handling, screened)
+from cfa_tool.pipeline.inputs import (load_data, load_spec, make_options, missing_codes_option, odd_value_problems,
+                                      odd_values_named, refit_missing_handling, screened)
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
-from cfa_tool.data.answer_words import code_answer_words
+from cfa_tool.data.answer_words import code_answer_words, coding_json, coding_record
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import SampleMoments, row_numbers, sample_moments
 from cfa_tool import options as check
@@ -70,6 +70,11 @@ class Replication(Presentable):
     data_problems: tuple = ()
     #: random halves of one file: which of its rows were split (None for two data sets)
     split: "SplitRows | None" = None
+    #: what reading the data files did to them, as fit says it: the reader's notes and how the model's 'answers'
+    #: statements coded answers recorded as words (data.answer_words), in the report's warnings and the JSON
+    notes: tuple[str, ...] = ()
+    #: the model's coding of answer words (data.answer_words.coding_record), as a fit's JSON keeps it
+    answer_coding: tuple = ()
 
     def to_dict(self) -> dict:
         loose = self.loose.fit.to_dict() if self.loose.fit is not None else None
@@ -79,6 +84,8 @@ class Replication(Presentable):
 
         return clean({
             "data_problems": [p.to_dict() for p in self.data_problems],
+            "notes": list(self.notes),
+            **({"answer_coding": coding_json(self.answer_coding)} if self.answer_coding else {}),
             "split": self.split.to_dict() if self.split is not None else None,
             "calibration": {"data": self.calibration, "n_obs": self.calibration_result.n_obs,
                             "admissible": self.calibration_result.admissible,
@@ -282,7 +289,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     read = [load_data(calibration, sheet, missing_codes), load_data(validation, sheet, missing_codes)]
     for loaded in read:
         check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
-    read = [_words_coded(spec, loaded) for loaded in read]
+    read, notes = zip(*(_words_coded(spec, loaded, missing_codes) for loaded in read))
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
     screens = [screened(loaded.frame, spec.observed_names, loaded.source, loaded.non_answers, loaded.cautions) for loaded in read]
@@ -295,13 +302,18 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
         else:
             result = replicate_moments(spec, _moments(spec, cal_frame, cal_source, missing),
                                        _moments(spec, val_frame, val_source, missing), **options)
-    return replace(result, data_problems=sum((odd_value_problems(s) for s in screens), ()))
+    return replace(result, data_problems=sum((odd_value_problems(s) for s in screens), ()),
+                   notes=tuple(dict.fromkeys(n for file_notes in notes for n in file_notes)),
+                   answer_coding=coding_record(spec))
 
 
-def _words_coded(spec: Spec, loaded):
-    """The data read with the answer words of the model's 'answers' statements as their codes."""
-    frame, _ = code_answer_words(spec, loaded.frame, loaded.source)
-    return loaded if frame is loaded.frame else replace(loaded, frame=frame)
+def _words_coded(spec: Spec, loaded, missing_codes=()) -> tuple:
+    """The data read with the answer words of the model's 'answers' statements as their codes, as fit reads them
+    (``missing_codes``, --missing-codes, are no answer among the words too), and the notes of the reading: the
+    reader's and how the words were coded."""
+    frame, coding_notes = code_answer_words(spec, loaded.frame, loaded.source,
+                                            missing_codes=missing_codes_option(missing_codes))
+    return (loaded if frame is loaded.frame else replace(loaded, frame=frame)), (*loaded.notes, *coding_notes)
 
 
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1,
@@ -316,7 +328,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                                                      options if missing is None else {**options, "missing": missing})
     loaded = load_data(data, sheet, missing_codes)
     check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
-    loaded = _words_coded(spec, loaded)
+    loaded, notes = _words_coded(spec, loaded, missing_codes)
     frame, source = loaded.frame, loaded.source
     screen = screened(frame, spec.observed_names, source, loaded.non_answers, loaded.cautions)
     with odd_values_named(screen):
@@ -325,7 +337,8 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     split = pair[0].calibration_result.n_obs + pair[0].loose.n_obs
     rows = SplitRows(split, len(frame), split < len(frame.dropna(subset=list(spec.observed_names), how="all")),
                      *halves)
-    return tuple(replace(rep, data_problems=problems, split=rows) for rep in pair)
+    return tuple(replace(rep, data_problems=problems, split=rows, notes=notes, answer_coding=coding_record(spec))
+                 for rep in pair)
 
 
 @dataclass(frozen=True)

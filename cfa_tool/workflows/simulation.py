@@ -424,12 +424,36 @@ def equal_thresholds(categories: int) -> np.ndarray:
     return dist.norm_ppf(np.arange(1, categories) / categories)
 
 
-def with_categories(population: Population, spec: Spec, categories: int | None) -> Population:
+def answer_categories(spec: Spec) -> dict[str, tuple[float, ...]]:
+    """Each item an 'answers' statement covers -> the codes of the words the statement lists, lowest first: the
+    item's answer categories (numbers listed beside the words, such as '9 = 9', are codes a column may hold among the
+    words, not answers of the scale, and are left out)."""
+    return {x: tuple(sorted({a.code for a in c.answers if a.word is not None}))
+            for x, c in spec.answer_codings().items()}
+
+
+def _coding_error(spec: Spec, item: str, what: str) -> ModelError:
+    """An error naming the 'answers' statement that covers ``item`` (its line, with the line shown)."""
+    coding = spec.answer_codings()[item]
+    return ModelError(what.replace("{origin}", coding.origin), coding.location, spec.source_line(coding.location))
+
+
+def with_categories(population: Population, spec: Spec, categories: int | None,
+                    command: str = "simulate") -> Population:
     """The population with thresholds for its ordinal items: those of an earlier ordinal fit, or equally
-    likely ``categories`` for the items an 'ordinal' statement declares (every item without one)."""
+    likely ``categories`` for the items an 'ordinal' statement declares (every item without one).
+
+    Items an 'answers' statement covers are answers in its categories (:func:`answer_categories`): cut into as many
+    equally likely categories as it lists codes (an ordinal item of an earlier fit keeps its thresholds, whose number
+    of categories must agree), so an 'ordinal' statement needs no --categories for them, and a number of categories
+    that differs from the statement's is an error.  ``simulate`` writes every such item as the statement's words,
+    ordinal or not; a ``command`` that fits the samples (power-simulation) treats items the model does not declare
+    ordinal as continuous, which answers in a few categories are not: such an item is an error naming the statement."""
     from dataclasses import replace
 
     declared = [x.text for x in spec.ordinal]
+    coded = answer_categories(spec)
+    thresholds = dict(population.thresholds or {})
     if population.thresholds is not None:
         if categories is not None:
             raise OptionError(f"the categories come from the thresholds of the earlier fit in "
@@ -438,15 +462,61 @@ def with_categories(population: Population, spec: Spec, categories: int | None) 
         if lacking:
             raise OptionError(f"the model declares '{lacking[0]}' ordinal, but the earlier fit in "
                               f"{population.fitted_from} treated it as continuous and gives no thresholds for it")
+        for x, codes in coded.items():
+            if x in thresholds and len(thresholds[x]) + 1 != len(codes):
+                raise _coding_error(spec, x, f"the earlier fit in {population.fitted_from} has "
+                                             f"{len(thresholds[x]) + 1} answer categories of '{printable(x)}', and "
+                                             f"{{origin}} lists {len(codes)} codes for it; give the model file the "
+                                             f"fit was made with")
+        cut = set(thresholds)
+    else:
+        if categories is None:
+            lacking = [x for x in declared if x not in coded]
+            if lacking:
+                raise OptionError(f"the model declares ordinal items ({', '.join(lacking[:5])}); give the number of "
+                                  f"categories to cut them into (--categories)")
+        cut = set(declared) if declared or categories is None else set(population.observed)
+        for x in population.observed:
+            if x in cut and x in coded:
+                if categories is not None and len(coded[x]) != categories:
+                    raise _coding_error(spec, x, f"--categories {categories} cuts '{printable(x)}' into "
+                                                 f"{categories} categories, and {{origin}} lists {len(coded[x])} "
+                                                 f"codes for it; leave --categories out (the statement gives the "
+                                                 f"categories) or make them agree")
+                thresholds[x] = equal_thresholds(len(coded[x]))
+            elif x in cut:
+                thresholds[x] = equal_thresholds(categories)
+    for x, codes in coded.items():
+        if x in cut:
+            continue
+        if command != "simulate":
+            raise _coding_error(spec, x, f"{{origin}} records the answers of '{printable(x)}' in {len(codes)} "
+                                         f"categories, and {command} simulates continuous answers for the items "
+                                         f"the model does not declare ordinal; declare them ordinal (an 'ordinal' "
+                                         f"statement, or --categories {len(codes)}) to simulate answers in the "
+                                         f"statement's categories, or remove the statement for the power of "
+                                         f"continuous answers")
+        thresholds[x] = equal_thresholds(len(codes))  # simulate writes the statement's words
+    if set(thresholds) == set(population.thresholds or ()):  # nothing cut beyond the earlier fit's items
         return population
-    if declared and categories is None:
-        raise OptionError(f"the model declares ordinal items ({', '.join(declared[:5])}); give the number of "
-                          f"categories to cut them into (--categories)")
-    if categories is None:
-        return population
-    items = declared or list(population.observed)
-    return replace(population, thresholds={x: equal_thresholds(categories) for x in population.observed if x in items},
-                   equal_categories=True)
+    return replace(population, thresholds={x: thresholds[x] for x in population.observed if x in thresholds},
+                   equal_categories=population.thresholds is None or population.equal_categories)
+
+
+def written_as_words(frame: pd.DataFrame, spec: Spec, observed: tuple[str, ...]) -> pd.DataFrame:
+    """Simulated answers (categories 1..k) of the items an 'answers' statement covers, as the statement's words: the
+    c-th lowest code's first word, so the file reads back through the same statement (data.answer_words)."""
+    codings = spec.answer_codings()
+    for x in observed:
+        if x not in codings:
+            continue
+        words: dict[float, str] = {}
+        for answer in codings[x].answers:
+            if answer.word is not None:
+                words.setdefault(answer.code, answer.word)
+        by_category = {c + 1: words[code] for c, code in enumerate(sorted(words))}
+        frame[x] = frame[x].map(lambda v: by_category.get(int(v)) if pd.notna(v) else None).astype(object)
+    return frame
 
 
 def cut_at_thresholds(rows: np.ndarray, sigma: np.ndarray, observed: tuple[str, ...],
@@ -470,11 +540,17 @@ class SimulatedData(Presentable):
     seed: int
     categories: int | None
     missing: float
+    #: the items written as the words of the model's 'answers' statements (their answer categories)
+    worded: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
+        from cfa_tool.data.answer_words import coding_json, coding_record
+
         return {"rows": len(self.frame), "variables": list(self.frame.columns), "seed": self.seed,
                 "categories": self.categories, "ordinal_items": list(self.population.ordinal_items),
-                "missing_share": self.missing, "population": self.population.values()}
+                "missing_share": self.missing, "population": self.population.values(),
+                **({"written_as_words": list(self.worded),
+                    "answer_coding": coding_json(coding_record(self.population.spec))} if self.worded else {})}
 
 
 def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing: float = 0.0,
@@ -498,7 +574,7 @@ def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing
     if n * p > check.MAX_SIMULATED_CELLS:
         raise OptionError(f"{n:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values; "
                           f"simulate fewer rows at a time")
-    population = with_categories(population_from_spec(spec, population), spec, categories)
+    population = with_categories(population_from_spec(spec, population), spec, categories, "simulate")
     rng = np.random.default_rng(seed)
     rows = simulate_rows(population.sigma, n, rng)
     cut = population.ordinal_items
@@ -511,4 +587,7 @@ def simulate(spec, n: int, seed: int = 1, categories: int | None = None, missing
     frame = pd.DataFrame(rows, columns=list(population.observed))
     if cut:  # answers are whole numbers (a nullable integer type keeps the gaps)
         frame = frame.astype({x: "Int64" for x in cut})
-    return SimulatedData(frame, population, seed, categories, missing)
+    worded = tuple(x for x in population.observed if x in spec.answer_codings())
+    if worded:  # the model's 'answers' statements: the words, as the data the model reads hold them
+        frame = written_as_words(frame, spec, population.observed)
+    return SimulatedData(frame, population, seed, categories, missing, worded)

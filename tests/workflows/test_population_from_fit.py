@@ -210,5 +210,5 @@ def test_categories_with_a_continuous_fit_are_named_as_such(tmp_path):
     sources = {v["kind"]: v["from"] for v in simulated.population.values()}
     assert sources["threshold"] == "default" and sources["loading"] == "earlier fit"
     text = " ".join(simulated.summary().split())
-    assert "but the thresholds, which cut equally likely categories (--categories)" in text
+    assert "but the thresholds, which cut equally likely categories (as many as --categories or the 'answers' statement gives)" in text
     assert "default = the thresholds of equally likely categories" in text
