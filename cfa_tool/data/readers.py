@@ -14,6 +14,7 @@ import unicodedata
 import csv
 import io
 import re
+from collections.abc import Collection
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import TYPE_CHECKING
@@ -75,9 +76,12 @@ STATA_SUFFIXES = (".dta",)
 
 
 def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-              text_columns: tuple[str, ...] = ()) -> LoadedData:
+              text_columns: tuple[str, ...] = (), items: Collection[str] | None = None) -> LoadedData:
     """Any supported file -> LoadedData; ``missing_codes`` are values that mean 'no answer'; ``text_columns``
-    (an id column) are read from delimited text as written ('007' stays '007')."""
+    (an id column) are read from delimited text as written ('007' stays '007').  ``items``: the model's item
+    columns, the only ones whose text cells and value labels that say no answer ('Not applicable', 9 'refused') are
+    read as missing (data.non_answers); a group, id, weight or cluster column keeps such a value as it is (a group
+    named 'N/A' stays a group).  None (no model yet): every column but ``text_columns``."""
     path = Path(path)
     suffix = path.suffix.lower()
     binary = suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES
@@ -108,7 +112,9 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = replace(loaded, frame=blank_text_as_missing(loaded.frame, text_columns))
     if suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _numbers_from_text(loaded, text_columns)
-    frame, written = written_non_answers(loaded.frame, text_columns)  # before the codes: 'refused' made a column text
+    as_written = tuple(text_columns) if items is None else tuple(
+        c for c in loaded.frame.columns if str(c) not in set(items))
+    frame, written = written_non_answers(loaded.frame, as_written)  # before the codes: 'refused' made a column text
     read_as_none = []  # (column, cells) that --missing-codes turned into no answer
     if missing_codes:
         frame = frame.copy()
@@ -118,7 +124,8 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
                 if coded.any():
                     read_as_none.append((column, int(coded.sum())))
                     frame[column] = frame[column].where(~coded)
-    frame, labelled = labelled_non_answers(frame, loaded.value_labels, tuple(missing_codes))
+    frame, labelled = labelled_non_answers(frame, {c: v for c, v in loaded.value_labels.items() if c not in as_written},
+                                           tuple(missing_codes))
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
     if missing_codes:

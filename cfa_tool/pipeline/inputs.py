@@ -107,7 +107,8 @@ def of_summary_statistics(result, moments, notes) -> object:
 
 
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-              text_columns: tuple[str, ...] = ()) -> LoadedData:
+              text_columns: tuple[str, ...] = (), items=None) -> LoadedData:
+    """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to)."""
     missing_codes = missing_codes_option(missing_codes)
     if isinstance(data, pd.DataFrame):
         if sheet is not None:
@@ -121,7 +122,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
-        return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns)
+        return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -144,10 +145,12 @@ def keep_option(keep) -> list[str]:
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
-                           text_columns: tuple[str, ...] = ()) -> tuple[Spec, LoadedData, list[str]]:
+                           text_columns: tuple[str, ...] = (), items=None) -> tuple[Spec, LoadedData, list[str]]:
+    """The model and the data read for it; no-answer words and labels are read as missing in ``items`` only (None:
+    the model's items), never in a group, id or design column."""
     keep = keep_option(keep)
     spec = load_spec(model)
-    loaded = load_data(data, sheet, missing_codes, text_columns)
+    loaded = load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items)
     frame = loaded.frame
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
     columns = [c if type(c) is str else str(c) for c in labels]
