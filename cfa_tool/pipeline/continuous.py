@@ -12,7 +12,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.assessment.admissibility import small_group_problems, solution_problems
+from cfa_tool.assessment.admissibility import group_size_problems, solution_problems
 from cfa_tool.data.descriptives import answer_extremes, item_shape
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, incomplete_case_diagnostics, normalized_residuals
@@ -290,7 +290,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         evaluation = likelihood.evaluate(theta)
         if evaluation is not None and np.all(np.isfinite(evaluation.information)):
             check_information_rank(evaluation.information, table.free_labels)
-    problems = small_group_problems(table, [m.n_obs for _, m in groups]) + tuple(solution_problems(
+    small, small_notes = group_size_problems(table, [m.n_obs for _, m in groups])
+    warnings.extend(small_notes)
+    problems = small + tuple(solution_problems(
         table, mats, theta, cov_theta if est.converged else None, est.converged, est.message, options.max_iterations))
 
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized)

@@ -943,7 +943,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     coverage.  A sampling design (``weights``, ``cluster``, ``strata``, ``weight_kind``, as for :func:`fit`) is
     checked as the fit checks it and stated: the sum of the weights, Kish's effective sample size, the
     clusters and strata, with the caution a fit would give about too few clusters."""
-    from cfa_tool.assessment.admissibility import group_parameter_counts, small_group_problems
+    from cfa_tool.assessment.admissibility import group_parameter_counts, group_size_problems
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
@@ -985,6 +985,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     labels = tuple(label for label, _ in groups) if group is not None else None
     table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)
     check_counting_rule(spec, table)
+    # each group's rows per parameter, by the fit's rule (an ordinal fit's thresholds: counted by the fit)
+    small, small_notes = group_size_problems(table, [m.n_obs for _, m in groups]) if not ordinal_items else ((), ())
+    notes += small_notes
     sample_design = design_summary(frame, design, [m for _, m in groups]) if design is not None else None
     answered = _labelled(frame, group)[list(spec.observed_names)].notna()
     every_item = answered.all(axis=1).to_numpy()
@@ -1005,8 +1008,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
-                       odd_value_problems(loaded, group) + (() if ordinal_items else  # (thresholds: counted by the fit)
-                                                     small_group_problems(table, [m.n_obs for _, m in groups])),
+                       odd_value_problems(loaded, group) + small,
                        len(frame) - len(answered), odd_complete,
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,
                        group_rows=tuple(m.n_obs for _, m in groups) if labels else (),
