@@ -60,6 +60,8 @@ def test_invariance_names_the_small_group_first(three_schools):
 
     result = invariance(THREE_FACTORS, three_schools, group="school")
     assert result.warnings[0].startswith("Group Annex: 28 rows for the 30 free parameters")
+    # and the groups below 5 rows per parameter of the configural model get the fit's note
+    assert [n for n in result.notes if n.startswith("groups Grant-White (145 rows for 30 parameters) and Pasteur")]
 
 
 def test_a_fit_that_fails_in_a_small_group_says_so_first(hs_data):
