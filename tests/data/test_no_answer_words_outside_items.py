@@ -15,6 +15,7 @@ import pytest
 import cfa_tool
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.errors import DataError
+from tests.conftest import simulate_cfa
 
 ITEMS = ["c1", "c2", "c3", "s1", "s2", "s3"]
 MODEL = "factor comfort: c1..c3\nfactor courtesy: s1..s3\n"
@@ -22,10 +23,9 @@ MODEL = "factor comfort: c1..c3\nfactor courtesy: s1..s3\n"
 
 @pytest.fixture(scope="module")
 def answers() -> pd.DataFrame:
-    rng = np.random.default_rng(2911)
-    eta = rng.normal(size=(300, 2)) @ np.linalg.cholesky([[1, 0.4], [0.4, 1]]).T
-    latent = np.repeat(eta, 3, axis=1) * 0.8 + rng.normal(size=(300, 6)) * 0.6
-    return pd.DataFrame(np.digitize(latent, [-0.6, 0.3, 1.1]).astype(int), columns=ITEMS)
+    loadings = np.kron(np.eye(2), np.full((3, 1), 0.8))
+    latent = simulate_cfa(loadings, np.array([[1, 0.4], [0.4, 1]]), np.eye(6) * 0.36, 300, 2911, ITEMS)
+    return latent.apply(lambda column: np.digitize(column, [-0.6, 0.3, 1.1]))
 
 
 def _line(n: int) -> np.ndarray:
