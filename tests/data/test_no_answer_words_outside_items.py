@@ -14,7 +14,7 @@ import pytest
 
 import cfa_tool
 from cfa_tool.assessment.admissibility import ProblemKind
-from cfa_tool.errors import DataError
+from cfa_tool.errors import DataError, UserInputError
 from tests.conftest import simulate_cfa
 
 ITEMS = ["c1", "c2", "c3", "s1", "s2", "s3"]
@@ -87,3 +87,20 @@ def test_a_weight_that_says_no_answer_is_an_error_never_a_dropped_row(tmp_path, 
     data.to_csv(path, index=False)
     with pytest.raises(DataError, match=r"refused"):
         cfa_tool.check(MODEL, path, weights="w")
+
+
+def test_a_filter_column_keeps_its_words_and_the_error_names_the_filter_that_leaves_them_out(tmp_path, answers):
+    # a column compared as numbers by a row filter holds 'Prefer not to say': it is not an item, so the word stays
+    # (it was read as missing and its rows silently failed the filter); the error names the filter that leaves the
+    # rows out, and the two filters keep the rows pandas counts
+    data = answers.astype(object)
+    data["age"] = (np.arange(len(data)) % 50 + 16).astype(object)
+    data.loc[:9, "age"] = "Prefer not to say"
+    path = tmp_path / "riders.csv"
+    data.to_csv(path, index=False)
+    with pytest.raises(UserInputError, match="or leave its rows out first with --keep \"age != 'Prefer not "
+                                                        "to say'\""):
+        cfa_tool.check(MODEL, path, keep=["age >= 18"])
+    checked = cfa_tool.check(MODEL, path, keep=["age != 'Prefer not to say'", "age >= 18"])
+    ages = pd.to_numeric(data["age"], errors="coerce")
+    assert checked.rows == int((ages >= 18).sum())
