@@ -69,6 +69,14 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
     if merged:
         notes.append(f"in the {part} column '{printable(column)}', labels that differ only by spaces at their ends or "
                      f"by Unicode form were read as one {unit}: {_listed(merged, shown)}")
+    from cfa_tool.data.readers import MARKED
+
+    marked = frame.attrs.get(MARKED, {}).get(column)
+    if marked:  # 'N/A' read as no answer: a marker of missing data, or the name of a group?
+        listed = ", ".join(f"'{printable(m)}' ({n} cell{'s' if n != 1 else ''})" for m, n in marked.items())
+        notes.append(f"in the {part} column '{printable(column)}', cells written as {listed} were read as no answer, "
+                     f"so their rows have no {unit}; if such a marker names a {unit}, write it as a word (such as 'not "
+                     f"applicable') in a copy of the file")
     said = no_answer_labels(values)
     if said:
         named = [f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in said[:shown]]

@@ -104,3 +104,19 @@ def test_a_filter_column_keeps_its_words_and_the_error_names_the_filter_that_lea
     checked = cfa_tool.check(MODEL, path, keep=["age != 'Prefer not to say'", "age >= 18"])
     ages = pd.to_numeric(data["age"], errors="coerce")
     assert checked.rows == int((ages >= 18).sum())
+
+
+@pytest.mark.parametrize("suffix", [".csv", ".xlsx"])
+def test_a_group_written_as_a_marker_of_no_answer_is_named(tmp_path, answers, suffix):
+    # 'N/A' is a marker of missing data in every column (as statistics packages write it), so its rows have no group;
+    # since it may also name a group, the note on the group column says so (it said only how many rows were left out)
+    data = answers.astype(object)
+    data["line"] = np.where(np.arange(len(data)) % 2 == 0, "harbour", "ridge").astype(object)
+    data.loc[:11, "line"] = "N/A"
+    path = tmp_path / f"riders{suffix}"
+    data.to_csv(path, index=False) if suffix == ".csv" else data.to_excel(path, index=False)
+    checked = cfa_tool.check(MODEL, path, group="line")
+    assert sum(checked.group_rows) == len(data) - 12
+    assert ("in the group column 'line', cells written as 'N/A' (12 cells) were read as no answer, so their rows have "
+            "no group; if such a marker names a group, write it as a word (such as 'not applicable') in a copy of the "
+            "file") in checked.notes
