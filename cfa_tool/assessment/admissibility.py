@@ -13,6 +13,7 @@ explanation and what the researcher can try; every view shows them first.
 from __future__ import annotations
 
 import enum
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -93,7 +94,8 @@ ROWS_RULE = (f"a common rule of thumb, recalled from Bentler & Chou 1987, asks f
              f"per parameter; a convention, not a law")
 
 
-def sample_size_problems(rows, free, groups=None) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
+def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Sequence[str] | None = None
+                         ) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
     """The one rule of rows per parameter, for the whole sample (``groups`` None; ``rows`` and ``free`` then hold one
     number each) and for each group of several (``groups`` their labels; ``rows`` and ``free`` one number per group):
     a caution (first in every view) for a sample or group with fewer rows than its model's free parameters, and a
@@ -133,7 +135,7 @@ def sample_size_problems(rows, free, groups=None) -> tuple[tuple["Problem", ...]
                              f"and every comparison with the other groups, vary much from sample to sample",)
 
 
-def counted_parameters(free: int, labels) -> int:
+def counted_parameters(free: int, labels: Iterable[str]) -> int:
     """The free parameters of a one-group model as the rule of rows per parameter counts them: ``free`` (as the fit
     counts them) less the item intercepts among ``labels`` (the free parameters' labels), which only full-information
     ML adds to a one-group model, as the items' saturated means (a one-group model has no mean structure of its
@@ -256,7 +258,7 @@ def group_parameter_counts(table: ParameterTable) -> list[int]:
     return [len(u) for u in used]
 
 
-def group_size_problems(table: ParameterTable, rows) -> tuple[tuple[Problem, ...], tuple[str, ...]]:
+def group_size_problems(table: ParameterTable, rows: Sequence[float]) -> tuple[tuple[Problem, ...], tuple[str, ...]]:
     """:func:`sample_size_problems` for each group of a model of several (``rows``, one per group, as the fit counts
     them; the parameters of :func:`group_parameter_counts`); ((), ()) for one group, which the fit's result weighs
     as a whole (pipeline.results.fit_result)."""
