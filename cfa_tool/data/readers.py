@@ -112,8 +112,8 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = replace(loaded, frame=blank_text_as_missing(loaded.frame, text_columns))
     if suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _numbers_from_text(loaded, text_columns)
-    as_written = tuple(text_columns) if items is None else tuple(
-        c for c in loaded.frame.columns if str(c) not in set(items))
+    mine = None if items is None else {str(x) for x in items}
+    as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
     frame, written = written_non_answers(loaded.frame, as_written)  # before the codes: 'refused' made a column text
     read_as_none = []  # (column, cells) that --missing-codes turned into no answer
     if missing_codes:
