@@ -46,6 +46,11 @@ def test_frequency_weighted_shares_sum_to_the_chi_square(weighted):
     top = np.argsort(-direct, kind="stable")[:len(group.influential_cases)]
     assert [c.row for c in group.influential_cases] == (top + 1).tolist()
     assert [c.chi_square_share for c in group.influential_cases] == pytest.approx(direct[top].tolist(), rel=1e-8)
+    from cfa_tool.reporting.tables import case_table
+
+    assert case_table(result).note.endswith(
+        "Under the frequency weights each row's contribution is its weight times its own, and its distances are from "
+        "the weighted means and covariances.")
     # the rows repeated by their weights, fitted without weights: the same chi-square, and a copy's share times the
     # weight is the row's share
     repeated = data.loc[data.index.repeat(data["w"].astype(int)), ITEMS].reset_index(drop=True)
