@@ -13,11 +13,12 @@ explanation and what the researcher can try; every view shows them first.
 from __future__ import annotations
 
 import enum
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
 
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import OptionError, printable
 from cfa_tool.language.names import reference_text
 from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
@@ -93,23 +94,54 @@ ROWS_RULE = (f"a common rule of thumb, recalled from Bentler & Chou 1987, asks f
              f"per parameter; a convention, not a law")
 
 
-def small_sample_problems(rows: float, free: int) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
-    """For a fit of one group of ``rows`` rows with ``free`` free parameters: a caution (first in every view) when the
-    rows are fewer than the parameters, and otherwise a note when they are fewer than :data:`ROWS_PER_PARAMETER` per
-    parameter (a rule of thumb; Bentler & Chou 1987, recalled from memory).  Returns (problems, notes)."""
-    if free <= 0 or rows >= ROWS_PER_PARAMETER * free:
-        return (), ()
-    thumb = ROWS_RULE
-    if rows >= free:
-        return (), (f"{rows:g} rows for the {free} free parameters of the model, fewer than {ROWS_PER_PARAMETER} per "
-                    f"parameter ({thumb}): estimates and fit indices of a sample this small vary much from sample to "
-                    f"sample",)
-    return (Problem(
-        ProblemKind.SMALL_SAMPLE, (), float(rows),
-        f"{rows:g} rows for the {free} free parameters of the model: every estimate and fit index rests on too few "
-        f"answers, and a CFI of 1 or a TLI above 1 then says little about fit (fewer rows than parameters; {thumb}).",
-        "gather more rows, or fit a smaller model (fewer items or factors); do not judge this fit against the guide "
-        "values of the fit indices."),), ()
+def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Sequence[str] | None = None
+                         ) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
+    """The one rule of rows per parameter, for the whole sample (``groups`` None; ``rows`` and ``free`` then hold one
+    number each) and for each group of several (``groups`` their labels; ``rows`` and ``free`` one number per group):
+    a caution (first in every view) for a sample or group with fewer rows than its model's free parameters, and a
+    note naming those with fewer than :data:`ROWS_PER_PARAMETER` rows per parameter (a common rule of thumb;
+    Bentler & Chou 1987, recalled from memory: a convention, not a law).  ``free`` counts the model's parameters the
+    same way whatever the estimator (:func:`counted_parameters`).  Returns (problems, notes)."""
+    several = groups is not None
+    problems, noted = [], []
+    for label, n, q in zip(groups if several else (None,), rows, free):
+        if q <= 0 or n >= ROWS_PER_PARAMETER * q:
+            continue
+        if n >= q:
+            noted.append((label, n, q))
+            continue
+        whose = "this group's model" if several else "the model"
+        also = "its estimates, and every comparison with the other groups," if several else "every estimate and fit index"
+        problems.append(Problem(
+            ProblemKind.SMALL_GROUP if several else ProblemKind.SMALL_SAMPLE, (), float(n),
+            f"{n:g} rows for the {q} free parameters of {whose}: {also} rest{'' if several else 's'} on too few "
+            f"answers" + ("" if several else ", and a CFI of 1 or a TLI above 1 then says little about fit")
+            + f" (fewer rows than parameters; {ROWS_RULE}).",
+            "gather more rows for this group, join it with a similar group by recoding the group column, or leave it "
+            "out with a row filter (--keep)." if several else
+            "gather more rows, or fit a smaller model (fewer items or factors); do not judge this fit against the guide "
+            "values of the fit indices.", label))
+    if not noted:
+        return tuple(problems), ()
+    if not several:
+        (_, n, q), = noted
+        return tuple(problems), (f"{n:g} rows for the {q} free parameters of the model, fewer than {ROWS_PER_PARAMETER} "
+                                 f"per parameter ({ROWS_RULE}): estimates and fit indices of a sample this small vary "
+                                 f"much from sample to sample",)
+    each = [f"{printable(str(label))} ({n:g} rows for {q} parameters)" for label, n, q in noted]
+    listed = each[0] if len(each) == 1 else f"{', '.join(each[:-1])} and {each[-1]}"
+    return tuple(problems), (f"group{'s' if len(each) > 1 else ''} {listed}: fewer than {ROWS_PER_PARAMETER} rows per "
+                             f"free parameter of the group's model ({ROWS_RULE}): the estimates of a group this small, "
+                             f"and every comparison with the other groups, vary much from sample to sample",)
+
+
+def counted_parameters(free: int, labels: Iterable[str]) -> int:
+    """The free parameters of a one-group model as the rule of rows per parameter counts them: ``free`` (as the fit
+    counts them) less the item intercepts among ``labels`` (the free parameters' labels), which only full-information
+    ML adds to a one-group model, as the items' saturated means (a one-group model has no mean structure of its
+    own): so one missing cell does not change the count.  Groups of several keep their intercepts, part of every
+    multi-group model whatever the estimator."""
+    return free - sum(1 for label in labels if split_label(label)[0] == "intercept")
 
 
 def free_parameters(result) -> int:
@@ -226,23 +258,13 @@ def group_parameter_counts(table: ParameterTable) -> list[int]:
     return [len(u) for u in used]
 
 
-def small_group_problems(table: ParameterTable, rows: list[float]) -> tuple[Problem, ...]:
-    """A caution for each group (of several) with fewer rows (``rows``, one per group, as the fit counts them) than
-    its model has free parameters: its estimates, and every comparison with other groups, rest on too few answers
-    (a common rule of thumb asks for at least :data:`ROWS_PER_PARAMETER` rows per parameter; Bentler & Chou 1987,
-    recalled from memory)."""
+def group_size_problems(table: ParameterTable, rows: Sequence[float]) -> tuple[tuple[Problem, ...], tuple[str, ...]]:
+    """:func:`sample_size_problems` for each group of a model of several (``rows``, one per group, as the fit counts
+    them; the parameters of :func:`group_parameter_counts`); ((), ()) for one group, which the fit's result weighs
+    as a whole (pipeline.results.fit_result)."""
     if not table.multigroup:
-        return ()
-    out = []
-    for label, n, q in zip(table.groups, rows, group_parameter_counts(table)):
-        if n < q:
-            out.append(Problem(
-                ProblemKind.SMALL_GROUP, (), float(n),
-                f"{n:g} rows for the {q} free parameters of this group's model: its estimates, and every "
-                f"comparison with the other groups, rest on too few answers (fewer rows than parameters; {ROWS_RULE}).",
-                "gather more rows for this group, join it with a similar group by recoding the group column, or leave "
-                "it out with a row filter (--keep).", label))
-    return tuple(out)
+        return (), ()
+    return sample_size_problems(rows, group_parameter_counts(table), table.groups)
 
 
 HEYWOOD_ADVICE = ("Look for what the model leaves out near it (a residual covariance or cross-loading the modification "

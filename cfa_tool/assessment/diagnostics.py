@@ -6,7 +6,9 @@
   (Mahalanobis 1936), chi-square on p df for normal data;
 * each row's share of the chi-square: with means saturated,
   2 (l_i(saturated) - l_i(model)) = log|Sigma| - log|S| + d_i' Sigma^-1 d_i - d_i' S^-1 d_i,
-  which sums over rows to the chi-square statistic exactly;
+  which sums over rows to the chi-square statistic exactly; under frequency weights w_i (a row counted w_i times)
+  d_i is centred at the weighted mean, S is the weighted covariance (divisor sum w) and the share is w_i times the
+  above, so that the shares again sum to the chi-square (that of the rows repeated by their weights);
 * with incomplete rows (full-information ML), each row's distance on the items it answered o,
   d^2 = (x_o - m_o)' S_oo^-1 (x_o - m_o) under the saturated (EM) moments, chi-square on |o| df
   (Yuan & Bentler 2000; Enders 2010, ch. 10), its distance under the fitted model, and its share
@@ -53,11 +55,14 @@ def normalized_residuals(S: np.ndarray, sigma: np.ndarray, n_obs: int) -> np.nda
 
 def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarray | None, top: int = 10,
                      whitened: Whitened | None = None,
-                     inverse: tuple[np.ndarray, float] | None = None) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
+                     inverse: tuple[np.ndarray, float] | None = None,
+                     frequencies: np.ndarray | None = None) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
     """(rows with the largest Mahalanobis distances, rows with the largest shares of chi-square);
     ``whitened`` is :func:`~cfa_tool.assessment.normality.whitened_rows` of the rows (their distances from the
     centroid and the centred rows) and ``inverse`` (Sigma^-1, log|Sigma|) when the caller has them (the estimation's
-    factorisation of Sigma)."""
+    factorisation of Sigma).  ``frequencies``: frequency weights, each row counted as often as its weight (then
+    ``whitened`` must come from the weighted mean and covariance, as the fit's moments are): each row's share is
+    weighted, so that the shares sum to the chi-square."""
     n, p = rows.shape
     if whitened is None:
         whitened = whitened_rows(rows)
@@ -70,6 +75,8 @@ def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarra
     dev = whitened.centred
     d_model = np.einsum("ij,ij->i", dev @ sigma_inv, dev)
     share = log_det_sigma - whitened.log_det + d_model - d_sample
+    if frequencies is not None:
+        share = share * frequencies
     chosen = np.concatenate([np.argsort(-d_sample, kind="stable")[:top], np.argsort(-share, kind="stable")[:top]])
     numbers = (chosen + 1 if row_numbers is None else row_numbers[chosen]).tolist()
     found = [CaseDiagnostic(*values) for values in zip(numbers, d_sample[chosen].tolist(),
@@ -96,12 +103,14 @@ def _answered_distances(rows: np.ndarray, patterns: tuple[np.ndarray, np.ndarray
 
 def incomplete_case_diagnostics(rows: np.ndarray, mean: np.ndarray, sigma: np.ndarray,
                                 saturated: tuple[np.ndarray, np.ndarray], row_numbers: np.ndarray | None,
-                                top: int = 10) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
+                                top: int = 10,
+                                frequencies: np.ndarray | None = None) -> tuple[list[CaseDiagnostic], list[CaseDiagnostic]]:
     """The case diagnostics of rows with gaps (NaN for a missing answer; every row answers some item) under
     full-information ML: (rows least likely under the saturated moments, by the p-value of their distance on
     chi-square with as many df as items answered; rows with the largest shares of the chi-square).  ``mean`` and
     ``sigma`` are the fitted model's, ``saturated`` the EM means and covariances (Yuan & Bentler 2000; Enders 2010).
-    The shares sum over the rows to the full-information chi-square of the group."""
+    The shares sum over the rows to the full-information chi-square of the group; under ``frequencies`` (frequency
+    weights) each row's share is weighted, as its casewise likelihood is."""
     from cfa_tool.data.patterns import group_patterns
 
     observed = ~np.isnan(rows)
@@ -110,6 +119,8 @@ def incomplete_case_diagnostics(rows: np.ndarray, mean: np.ndarray, sigma: np.nd
     d_saturated, log_det_saturated = _answered_distances(rows, patterns, *saturated)
     d_model, log_det_model = _answered_distances(rows, patterns, mean, sigma)
     share = log_det_model - log_det_saturated + d_model - d_saturated
+    if frequencies is not None:
+        share = share * frequencies
     p_values = dist.chi2_sf(d_saturated, answered)
     chosen = np.concatenate([np.lexsort((-d_saturated, p_values))[:top], np.argsort(-share, kind="stable")[:top]])
     numbers = (chosen + 1 if row_numbers is None else row_numbers[chosen]).tolist()

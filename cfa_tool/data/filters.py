@@ -105,11 +105,17 @@ def _first_text(column: pd.Series, numeric: pd.Series) -> str:
     text = column.notna().to_numpy() & numeric.isna().to_numpy()
     if not text.any() or text.sum() * 2 > column.notna().sum():  # a column of text: no one cell to name
         return ""
+    from cfa_tool.data.non_answers import says_no_answer
+
     k = int(text.argmax())
     more = int(text.sum()) - 1
-    return (f" ('{printable(str(column.iloc[k]))}' in data row {row_numbers(column)[k]}"
+    cell = str(column.iloc[k])
+    # words that say no answer are read as missing in item columns only (data.readers): a filter can leave them out
+    first = (f", or leave its rows out first with --keep \"{printable(str(column.name))} != '{printable(cell.strip())}'\""
+             if says_no_answer(cell) and "'" not in cell else "")
+    return (f" ('{printable(cell)}' in data row {row_numbers(column)[k]}"
             + (f", and {more} more such cell{'s' if more != 1 else ''}" if more else "")
-            + ", among numbers: correct it or leave it empty in a copy of the file to compare numbers)")
+            + f", among numbers: correct it or leave it empty in a copy of the file to compare numbers{first})")
 
 
 def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,

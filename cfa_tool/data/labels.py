@@ -69,7 +69,38 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
     if merged:
         notes.append(f"in the {part} column '{printable(column)}', labels that differ only by spaces at their ends or "
                      f"by Unicode form were read as one {unit}: {_listed(merged, shown)}")
+    from cfa_tool.data.readers import MARKED
+
+    marked = frame.attrs.get(MARKED, {}).get(column)
+    if marked:  # 'N/A' read as no answer: a marker of missing data, or the name of a group?
+        listed = ", ".join(f"'{printable(m)}' ({n} cell{'s' if n != 1 else ''})" for m, n in marked.items())
+        notes.append(f"in the {part} column '{printable(column)}', cells written as {listed} were read as no answer, "
+                     f"so their rows have no {unit}; if such a marker names a {unit}, write it as a word (such as 'not "
+                     f"applicable') in a copy of the file")
+    said = no_answer_labels(values)
+    if said:
+        named = [f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in said[:shown]]
+        listed = named[0] if len(named) == 1 else f"{', '.join(named[:-1])} and {named[-1]}"
+        more = f" and {len(said) - shown} more" if len(said) > shown else ""
+        listed, more = (f"{', '.join(named)}", more) if more else (listed, "")
+        first = printable(said[0][0]).replace("'", "")
+        notes.append(f"in the {part} column '{printable(column)}', {listed}{more} read{'s' if len(said) == 1 else ''} "
+                     f"like no answer, yet {'was' if len(said) == 1 else 'were'} kept as "
+                     f"{f'a {unit}' if len(said) == 1 else f'{unit}s'} of {'its' if len(said) == 1 else 'their'} own (words that say no "
+                     f"answer are read as missing in item columns only); if such rows have no {unit}, leave them out "
+                     f"with a row filter such as --keep \"{printable(column)} != '{first}'\"")
     return notes
+
+
+def no_answer_labels(values) -> list[tuple[str, int]]:
+    """The labels among ``values`` (a column's cells) whose words say no answer ('N/A', 'Prefer not to say';
+    data.non_answers.says_no_answer), each with its number of cells: [(label, cells)], in order of first sight."""
+    from collections import Counter
+
+    from cfa_tool.data.non_answers import says_no_answer
+
+    counts = Counter(label_text(v) for v in values if isinstance(v, str))
+    return [(label, n) for label, n in counts.items() if says_no_answer(label)]
 
 
 def spelled_labels(frame: pd.DataFrame, column: str, values) -> list[tuple[str, list[str]]]:

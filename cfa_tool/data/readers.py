@@ -14,6 +14,7 @@ import unicodedata
 import csv
 import io
 import re
+from collections.abc import Collection
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import TYPE_CHECKING
@@ -76,9 +77,12 @@ STATA_SUFFIXES = (".dta",)
 
 
 def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-              text_columns: tuple[str, ...] = ()) -> LoadedData:
+              text_columns: tuple[str, ...] = (), items: Collection[str] | None = None) -> LoadedData:
     """Any supported file -> LoadedData; ``missing_codes`` are values that mean 'no answer'; ``text_columns``
-    (an id column) are read from delimited text as written ('007' stays '007')."""
+    (an id column) are read from delimited text as written ('007' stays '007').  ``items``: the model's item
+    columns, the only ones whose text cells and value labels that say no answer ('Not applicable', 9 'refused') are
+    read as missing (data.non_answers); a group, id, weight or cluster column keeps such a value as it is (a group
+    named 'N/A' stays a group).  None (no model yet): every column but ``text_columns``."""
     path = Path(path)
     suffix = path.suffix.lower()
     binary = suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES
@@ -109,7 +113,9 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = replace(loaded, frame=blank_text_as_missing(loaded.frame, text_columns))
     if suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _numbers_from_text(loaded, text_columns)
-    frame, written = written_non_answers(loaded.frame, text_columns)  # before the codes: 'refused' made a column text
+    mine = None if items is None else {str(x) for x in items}
+    as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
+    frame, written = written_non_answers(loaded.frame, as_written)  # before the codes: 'refused' made a column text
     read_as_none = []  # (column, cells) that --missing-codes turned into no answer
     if missing_codes:
         frame = frame.copy()
@@ -119,7 +125,8 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
                 if coded.any():
                     read_as_none.append((column, int(coded.sum())))
                     frame[column] = frame[column].where(~coded)
-    frame, labelled = labelled_non_answers(frame, loaded.value_labels, tuple(missing_codes))
+    frame, labelled = labelled_non_answers(frame, {c: v for c, v in loaded.value_labels.items() if c not in as_written},
+                                           tuple(missing_codes))
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
     if missing_codes:
@@ -301,15 +308,19 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
     found = dict.fromkeys(MISSING_MARKERS, 0)
+    marked: dict[int, list] = {}
     for r in body:
         for k, v in enumerate(r):
             if isinstance(v, str) and v.strip() in found:
                 found[v.strip()] += 1
+                marked.setdefault(k, []).append(v)
                 r[k] = None
     _say_markers(found, where, notes)
     if any(v is None for r in body for v in r):
         _check_uncomputed_formulas(path, ws.title, first)
     frame = pd.DataFrame(body, columns=header)
+    if marked:
+        _keep_markers(frame, {header[k]: cells for k, cells in marked.items()})
     _check_header_rows(frame, where, False)
     if row_names:
         frame = _split_row_names(frame, names_out)
@@ -630,7 +641,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         _check_dotted_thousands(frame, raw, header, path, notes)
         _check_decimal_points(frame, str(path), text_columns)
     _keep_number_spellings(frame, raw)
-    _note_missing_markers(raw, header, path, notes)
+    _note_missing_markers(raw, header, path, notes, frame)
     empty = widest - len(header)
     if empty and notes is not None:
         notes.append(f"{path}: empty fields at the end of the lines (a delimiter after the last value) were ignored")
@@ -746,13 +757,36 @@ _MARKER = re.compile(r"(?:^|[,;\t|])\s*\"?(?:" + "|".join(map(re.escape, MISSING
                      re.MULTILINE)
 
 
-def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list[str] | None) -> None:
+def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list[str] | None,
+                          frame: pd.DataFrame | None = None) -> None:
     """A note naming the cells written as a marker of no answer ('.', 'NA', ...), which are read as empty cells: the
-    tool's messages ask for empty cells, so a file of markers should say how it was read (new-user trial)."""
+    tool's messages ask for empty cells, so a file of markers should say how it was read (new-user trial); each
+    column's markers kept in ``frame.attrs`` (:data:`MARKED`)."""
     if notes is None or not _MARKER.search(raw.body):
         return
     cells = raw.frame().apply(lambda column: column.str.strip())
     _say_markers({m: int((cells == m).to_numpy().sum()) for m in MISSING_MARKERS}, path, notes)
+    if frame is not None:
+        _keep_markers(frame, {name: cells.iloc[:, k].tolist() for k, name in enumerate(header)})
+
+
+#: the key of DataFrame.attrs that keeps, for each column, the markers of no answer its cells were written as and
+#: how many ({column: {marker: cells}}): a group column's note names them (cfa_tool.data.labels.label_notes)
+MARKED = "marked_no_answer"
+
+
+def _keep_markers(frame: pd.DataFrame, written: dict) -> None:
+    """Keep in ``frame.attrs[MARKED]`` each column's cells written as a marker of no answer (``written``: each
+    column's cells as written)."""
+    from collections import Counter
+
+    kept = {}
+    for name, cells in written.items():
+        counted = Counter(c.strip() for c in cells if isinstance(c, str) and c.strip() in MISSING_MARKERS)
+        if counted:
+            kept[name] = dict(counted)
+    if kept:
+        frame.attrs[MARKED] = kept
 
 
 def _say_markers(found: dict[str, int], where, notes: list[str] | None) -> None:

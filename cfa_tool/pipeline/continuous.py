@@ -12,7 +12,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.assessment.admissibility import small_group_problems, solution_problems
+from cfa_tool.assessment.admissibility import group_size_problems, solution_problems
 from cfa_tool.data.descriptives import answer_extremes, item_shape
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, incomplete_case_diagnostics, normalized_residuals
@@ -290,7 +290,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         evaluation = likelihood.evaluate(theta)
         if evaluation is not None and np.all(np.isfinite(evaluation.information)):
             check_information_rank(evaluation.information, table.free_labels)
-    problems = small_group_problems(table, [m.n_obs for _, m in groups]) + tuple(solution_problems(
+    small, small_notes = group_size_problems(table, [m.n_obs for _, m in groups])
+    warnings.extend(small_notes)
+    problems = small + tuple(solution_problems(
         table, mats, theta, cov_theta if est.converged else None, est.converged, est.message, options.max_iterations))
 
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized)
@@ -376,6 +378,13 @@ def _frequency_weights(gm: GroupMoments) -> np.ndarray | None:
     return design.weights if design is not None and design.kind is WeightKind.FREQUENCY else None
 
 
+def _row_weights(gm: GroupMoments) -> np.ndarray | None:
+    """Each row's weight as the fit counts it (frequency weights as given, sampling weights rescaled to sum to the
+    rows: data.sample_design.RowDesign), or None without a design: the weights of the rows' shares of the
+    chi-square, which then sum to it."""
+    return gm.design.weights if gm.design is not None else None
+
+
 def estimate_rows(table: ParameterTable, values: np.ndarray, inference, standardized: np.ndarray,
                   factors_standardized: np.ndarray,
                   derived: frozenset = frozenset()) -> tuple[EstimateRow, ...]:
@@ -418,11 +427,15 @@ def _group_diagnostics(mats, table, gm: GroupMoments, m: SampleMoments, sigma: n
     out = {"reliability": tuple(factors), "htmt": tuple(htmt),
            "normalized_residuals": normalized_residuals(gm.covariance, sigma, gm.n_obs)}
     if gm.rows is not None and not np.isnan(gm.rows).any():
-        unusual, influential = case_diagnostics(gm.rows, sigma, m.row_numbers, whitened=whitened, inverse=inverse)
+        frequencies = _row_weights(gm)  # each row's share weighted, from the weighted moments the fit used
+        if frequencies is not None:
+            whitened = whitened_rows(gm.rows, (gm.mean, gm.covariance))
+        unusual, influential = case_diagnostics(gm.rows, sigma, m.row_numbers, whitened=whitened, inverse=inverse,
+                                                frequencies=frequencies)
         out.update(unusual_cases=tuple(unusual), influential_cases=tuple(influential))
     elif gap_rows is not None:  # full-information ML: distances on the items each row answered
         unusual, influential = incomplete_case_diagnostics(gap_rows, mats.implied_mean(), sigma, (gm.mean, gm.covariance),
-                                                           m.row_numbers)
+                                                           m.row_numbers, frequencies=_row_weights(gm))
         out.update(unusual_cases=tuple(unusual), influential_cases=tuple(influential))
     return out
 

@@ -107,7 +107,8 @@ def of_summary_statistics(result, moments, notes) -> object:
 
 
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-              text_columns: tuple[str, ...] = ()) -> LoadedData:
+              text_columns: tuple[str, ...] = (), items=None) -> LoadedData:
+    """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to)."""
     missing_codes = missing_codes_option(missing_codes)
     if isinstance(data, pd.DataFrame):
         if sheet is not None:
@@ -121,7 +122,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
-        return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns)
+        return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -144,11 +145,13 @@ def keep_option(keep) -> list[str]:
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
-                           text_columns: tuple[str, ...] = ()) -> tuple[Spec, LoadedData, list[str]]:
+                           text_columns: tuple[str, ...] = (), items=None) -> tuple[Spec, LoadedData, list[str]]:
+    """The model and the data read for it; no-answer words and labels are read as missing in ``items`` only (None:
+    the model's items), never in a group, id or design column."""
     keep = keep_option(keep)
     spec = load_spec(model)
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
-    loaded = load_data(data, sheet, missing_codes, text_columns)
+    loaded = load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items)
     frame = loaded.frame
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
     columns = [c if type(c) is str else str(c) for c in labels]
@@ -962,7 +965,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     coverage.  A sampling design (``weights``, ``cluster``, ``strata``, ``weight_kind``, as for :func:`fit`) is
     checked as the fit checks it and stated: the sum of the weights, Kish's effective sample size, the
     clusters and strata, with the caution a fit would give about too few clusters."""
-    from cfa_tool.assessment.admissibility import group_parameter_counts, small_group_problems
+    from cfa_tool.assessment.admissibility import (counted_parameters, group_parameter_counts, group_size_problems,
+                                                   sample_size_problems)
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
@@ -1004,6 +1008,11 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     labels = tuple(label for label, _ in groups) if group is not None else None
     table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)
     check_counting_rule(spec, table)
+    # the rows per parameter of the sample or of each group, by the fit's rule (an ordinal fit's thresholds: counted
+    # by the fit)
+    small, small_notes = ((), ()) if ordinal_items else group_size_problems(table, [m.n_obs for _, m in groups]) \
+        if labels else sample_size_problems([groups[0][1].n_obs], [counted_parameters(table.n_free, table.free_labels)])
+    notes += small_notes
     sample_design = design_summary(frame, design, [m for _, m in groups]) if design is not None else None
     answered = _labelled(frame, group)[list(spec.observed_names)].notna()
     every_item = answered.all(axis=1).to_numpy()
@@ -1024,8 +1033,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
-                       odd_value_problems(loaded, group) + (() if ordinal_items else  # (thresholds: counted by the fit)
-                                                     small_group_problems(table, [m.n_obs for _, m in groups])),
+                       odd_value_problems(loaded, group) + small,
                        len(frame) - len(answered), odd_complete,
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,
                        group_rows=tuple(m.n_obs for _, m in groups) if labels else (),

@@ -16,7 +16,7 @@ from dataclasses import replace as dc_replace
 
 import numpy as np
 
-from cfa_tool.assessment.admissibility import small_group_problems, solution_problems
+from cfa_tool.assessment.admissibility import group_size_problems, solution_problems
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.fit_indices import fit_indices, srmr
 from cfa_tool.assessment.identification import check_information_rank
@@ -511,7 +511,9 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         if moments[0].continuous:
             warnings.append(MIXED_GROUPS_NOTE)
         warnings.append(ORDINAL_NOTE)
-    problems = small_group_problems(table, [m.n_obs for m in moments]) + tuple(solution_problems(
+    small, small_notes = group_size_problems(table, [m.n_obs for m in moments])
+    warnings.extend(small_notes)
+    problems = small + tuple(solution_problems(
         table, list(mats), theta, cov_theta if est.converged else None, est.converged, est.message, options.max_iterations))
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized)
     group_results = []

@@ -515,10 +515,11 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
 
         problems = tuple(problems) + tuple(weak_factor_problems(estimates, latent, observed, groups, spec.method_factors,
                                                                 spec.exploratory_factors)) + tuple(keying_problems(groups))
-    if len(groups) <= 1:  # one group: rows fewer than the parameters (groups of several: each group's own caution)
-        from cfa_tool.assessment.admissibility import small_sample_problems
+    if len(groups) <= 1:  # one group: the rule of rows per parameter (groups of several: each group's, by the same rule)
+        from cfa_tool.assessment.admissibility import counted_parameters, sample_size_problems
 
-        small, notes = small_sample_problems(n_obs, fit.n_free_parameters if fit is not None else len(parameter_labels))
+        free = counted_parameters(fit.n_free_parameters if fit is not None else len(parameter_labels), parameter_labels)
+        small, notes = sample_size_problems((n_obs,), (free,))
         problems, warnings = small + tuple(problems), tuple(warnings) + notes
     return FitResult(
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,

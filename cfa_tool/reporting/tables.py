@@ -788,6 +788,9 @@ def case_table(result, group: int = 0) -> ReportTable | None:
     note = ("Each row's contribution (in chi-square units; negative for a row the model fits better than the saturated "
             "model does) sums over all rows to the chi-square; large contributions and distances point at rows worth "
             "checking.")
+    if result.design is not None and result.design.columns.weights:
+        note += (f" Under the {result.design.columns.kind.label} each row's contribution is its weight times its own, "
+                 "and its distances are from the weighted means and covariances.")
     if gaps:
         note += (" With missing answers each row is measured on the items it answered (Yuan & Bentler 2000; Enders "
                  "2010): the squared Mahalanobis distance from the estimated means and covariances of all rows "

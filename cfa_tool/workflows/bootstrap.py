@@ -334,16 +334,39 @@ def _complete_row_influence(est, rows: np.ndarray, w: np.ndarray | None, design)
     return 2.0 * U @ WD @ scaled_inverse(hessian)  # (N, q); the Hessian is symmetric
 
 
-def acceleration(influence: np.ndarray, counts: np.ndarray | None = None) -> np.ndarray:
+def acceleration(influence: np.ndarray, counts: np.ndarray | None = None,
+                 strata: np.ndarray | None = None) -> np.ndarray:
     """BCa acceleration of each column of influence values: sum U^3 / (6 (sum U^2)^(3/2))
     (Efron 1987; Efron & Tibshirani 1993, ch. 14, with the jackknife's differences replaced by
     the empirical influence, which they approximate).  ``counts``: how many rows each line of ``influence``
-    stands for (frequency weights), each counted that often in the sums, as the expanded rows would be."""
+    stands for (frequency weights), each counted that often in the sums, as the expanded rows would be.
+    ``strata``: the stratum of each line, when the resamples draw within strata: U is then centred within its
+    stratum, the stratified influence values l_hj = (n_h / n) U_hj of Davison & Hinkley (1997, sec. 3.7), whose
+    acceleration sum_h n_h^-3 sum_j l_hj^3 / (6 (sum_h n_h^-2 sum_j l_hj^2)^(3/2)) (sec. 5.3) is the sum above."""
     c = np.ones(len(influence)) if counts is None else np.asarray(counts, dtype=float)
-    U = influence - c @ influence / c.sum()
+    if strata is None:
+        U = influence - c @ influence / c.sum()
+    else:  # each stratum's (count-weighted) mean taken out: a resample keeps every stratum's share of the rows
+        codes, index = np.unique(np.asarray(strata), return_inverse=True)
+        index = index.ravel()
+        sums = np.zeros((len(codes), influence.shape[1]))
+        np.add.at(sums, index, c[:, None] * influence)
+        U = influence - (sums / np.bincount(index, weights=c, minlength=len(codes))[:, None])[index]
     denominator = 6.0 * (c @ U**2) ** 1.5
     with np.errstate(invalid="ignore", divide="ignore"):
         return np.where(denominator > 0, c @ U**3 / np.where(denominator > 0, denominator, 1.0), 0.0)
+
+
+def unit_strata(design) -> np.ndarray | None:
+    """The stratum of each line of :func:`influence_values` under ``design`` (each record's when records are the
+    lines, :func:`_row_counts`; else each sampling unit's, in the order of :func:`sampling_units`), or None without
+    strata."""
+    if design is None or design.strata is None:
+        return None
+    if _row_counts(design) is not None:
+        return design.strata
+    units = sampling_units(design)
+    return np.repeat(np.unique(design.strata), [len(clusters) for clusters in units])
 
 
 def _row_counts(design) -> np.ndarray | None:
@@ -417,8 +440,8 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     accel_values = accel_std = None
     if bca:
         influence, influence_std = influence_values(spec, moments_rows, names, start, design)
-        counts = _row_counts(design)
-        accel_values, accel_std = acceleration(influence, counts), acceleration(influence_std, counts)
+        counts, strata = _row_counts(design), unit_strata(design)
+        accel_values, accel_std = acceleration(influence, counts, strata), acceleration(influence_std, counts, strata)
     intervals = _intervals(result, values, standardized, accel_values, accel_std)
     p_bs = converged_bs = None
     if bollen_stine is not False:

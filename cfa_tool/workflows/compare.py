@@ -134,7 +134,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                               f"raw data")
         return _compare_summary(specs, names, data, fit_options, group)
     refuse_different_codings(specs, names)
-    _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep)
+    _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep,
+                                              items={x for spec in specs for x in spec.observed_names})
     frame, source = loaded.frame, loaded.source
     coded = set(specs[0].observed_names)  # items of the later models only, each once: their answer words as codes
     for spec in specs[1:]:

@@ -21,7 +21,7 @@ from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ord
                                       make_options, moments_for, odd_value_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
                                       with_missing_reading)
-from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.assessment.admissibility import ProblemKind, group_size_problems
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
@@ -346,6 +346,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             freed_here.append(FreedParameter(level, top.kind, _ref_names(top), top.group, top.index))
             start = None
         freed.extend(freed_here)
+        if not steps:  # groups below the rule of rows per parameter of the configural model: the fit's note
+            notes = list(notes) + list(group_size_problems(est.table, [m.n_obs for _, m in groups])[1])
         conditional = any(not s.holds for s in steps)
         srmr_change = (result.fit.srmr - previous[1].fit.srmr) if previous is not None else None
         # the description of exactly the model fitted at this step, for the methods paragraph

@@ -286,7 +286,8 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     if _same_file(calibration, validation):
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           "new data (or give one file as --data to split it in two random halves)")
-    read = [load_data(calibration, sheet, missing_codes), load_data(validation, sheet, missing_codes)]
+    read = [load_data(calibration, sheet, missing_codes, items=spec.observed_names),
+            load_data(validation, sheet, missing_codes, items=spec.observed_names)]
     for loaded in read:
         check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
     read, notes = zip(*(_words_coded(spec, loaded, missing_codes) for loaded in read))
@@ -326,7 +327,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
                                                      options if missing is None else {**options, "missing": missing})
-    loaded = load_data(data, sheet, missing_codes)
+    loaded = load_data(data, sheet, missing_codes, items=spec.observed_names)
     check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
     loaded, notes = _words_coded(spec, loaded, missing_codes)
     frame, source = loaded.frame, loaded.source

@@ -29,8 +29,21 @@ def test_a_group_smaller_than_its_model_is_named_first(three_schools):
     assert "28 rows for the 30 free parameters of this group's model" in small[0].explanation
     assert "rule of thumb" in small[0].explanation and not small[0].kind.inadmissible
     assert result.problems[0] is small[0]
-    # groups of 145 and 128 rows are not named, nor is anything without groups
+    # groups of 145 and 128 rows get no caution, nor does anything without groups
     assert not any(p.kind is ProblemKind.SMALL_GROUP for p in cfa_tool.fit(THREE_FACTORS, three_schools).problems)
+
+
+def test_each_group_below_five_rows_per_parameter_gets_the_samples_note(three_schools):
+    # the rule of the whole sample (a note below 5 rows per parameter, a common rule of thumb recalled from Bentler &
+    # Chou 1987), applied to each group: Grant-White (145 rows) and Pasteur (128) are below 5 x 30 = 150
+    counts = three_schools.school.value_counts()
+    assert (counts["Grant-White"], counts["Pasteur"], counts["Annex"]) == (145, 128, 28)
+    result = cfa_tool.fit(THREE_FACTORS, three_schools, group="school")
+    said = [w for w in result.warnings if "rows per free parameter of the group's model" in w]
+    assert len(said) == 1 and said[0].startswith(
+        "groups Grant-White (145 rows for 30 parameters) and Pasteur (128 rows for 30 parameters): fewer than 5 rows")
+    assert "Annex" not in said[0]  # its caution says more
+    assert [n for n in cfa_tool.check(THREE_FACTORS, three_schools, group="school").notes if n == said[0]]
 
 
 def test_check_lists_each_groups_rows_and_the_caution(three_schools):
@@ -47,6 +60,8 @@ def test_invariance_names_the_small_group_first(three_schools):
 
     result = invariance(THREE_FACTORS, three_schools, group="school")
     assert result.warnings[0].startswith("Group Annex: 28 rows for the 30 free parameters")
+    # and the groups below 5 rows per parameter of the configural model get the fit's note
+    assert [n for n in result.notes if n.startswith("groups Grant-White (145 rows for 30 parameters) and Pasteur")]
 
 
 def test_a_fit_that_fails_in_a_small_group_says_so_first(hs_data):

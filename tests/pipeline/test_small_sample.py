@@ -1,24 +1,43 @@
 """A fit of one group with fewer rows than its model's free parameters: a caution first; below a common rule of
-thumb of 5 rows per parameter (Bentler & Chou 1987, recalled from memory): a note.  The count of free parameters is
-by hand for the three-factor model of Holzinger & Swineford (1939) on complete rows: 6 free loadings, 9 residual
-variances, 3 factor variances and 3 factor covariances = 21 (no mean structure with complete rows)."""
+thumb of 5 rows per parameter (Bentler & Chou 1987, recalled from memory; a convention, not a law): a note.  The count
+of free parameters is by hand for the three-factor model of Holzinger & Swineford (1939): 6 free loadings, 9 residual
+variances, 3 factor variances and 3 factor covariances = 21, whatever the estimator (the 9 item means that
+full-information ML adds when a cell is missing are the items' saturated means, not parameters of the model)."""
 
 from __future__ import annotations
 
 import pytest
 
 import cfa_tool
-from cfa_tool.assessment.admissibility import ProblemKind, small_sample_problems
+from cfa_tool.assessment.admissibility import ProblemKind, sample_size_problems
 from tests.conftest import THREE_FACTORS
 
 ITEMS = [f"x{i}" for i in range(1, 10)]
 
 
 def test_the_rule_by_hand():
-    assert small_sample_problems(20, 21)[0][0].kind is ProblemKind.SMALL_SAMPLE
-    assert small_sample_problems(21, 21)[0] == () and small_sample_problems(21, 21)[1]  # a note only
-    assert small_sample_problems(104, 21)[0] == () and small_sample_problems(104, 21)[1]
-    assert small_sample_problems(105, 21) == ((), ())  # 5 x 21 = 105
+    assert sample_size_problems((20,), (21,))[0][0].kind is ProblemKind.SMALL_SAMPLE
+    assert sample_size_problems((21,), (21,))[0] == () and sample_size_problems((21,), (21,))[1]  # a note only
+    assert sample_size_problems((104,), (21,))[0] == () and sample_size_problems((104,), (21,))[1]
+    assert sample_size_problems((105,), (21,)) == ((), ())  # 5 x 21 = 105
+    # groups by the same rule: a caution for the group below its parameters, one note naming those below 5 per parameter
+    problems, notes = sample_size_problems((20, 21, 104, 105), (21, 21, 21, 21), ("a", "b", "c", "d"))
+    assert [(p.kind, p.group) for p in problems] == [(ProblemKind.SMALL_GROUP, "a")]
+    assert len(notes) == 1 and notes[0].startswith("groups b (21 rows for 21 parameters) and c (104 rows for 21 "
+                                                   "parameters): fewer than 5 rows per free parameter")
+    assert "rule of thumb" in notes[0] and "not a law" in notes[0] and "'d'" not in notes[0]
+
+
+def test_one_missing_cell_does_not_change_the_count(hs_data):
+    # 22 rows with one empty cell: full-information ML (9 item means added) counts the same 21 parameters as the
+    # complete rows do, so a note, never the caution that 30 parameters (21 + 9 means) would give
+    data = hs_data[ITEMS].iloc[140:162].copy()
+    data.iloc[3, 4] = float("nan")
+    result = cfa_tool.fit(THREE_FACTORS, data)
+    assert result.method.missing.name == "FULL_INFORMATION"
+    assert not any(p.kind is ProblemKind.SMALL_SAMPLE for p in result.problems)
+    said = [w for w in result.warnings if w.startswith("22 rows for the 21 free parameters of the model, fewer than 5")]
+    assert said and said[0] in cfa_tool.check(THREE_FACTORS, data).notes  # check says what the fit says
 
 
 def test_fewer_rows_than_parameters_bring_a_caution_first(hs_data):
