@@ -3,7 +3,10 @@ and the count among answers recorded as words (data/answer_words.py) are both wr
 
 from __future__ import annotations
 
+from collections.abc import Collection
 from pathlib import Path
+
+import pandas as pd
 
 from cfa_tool.errors import printable
 from cfa_tool.input_files import base_name
@@ -26,3 +29,44 @@ def missing_codes_note(source: str | Path, codes, read_as_none: list[tuple[str, 
         f" and {len(read_as_none) - NAMED_COLUMNS} more columns" if len(read_as_none) > NAMED_COLUMNS else "")
     return (f"{name}: {total} {'cell' if total == 1 else 'cells'} {where + ' ' if where else ''}holding a code given "
             f"with --missing-codes ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})")
+
+
+def apply_missing_codes(frame: pd.DataFrame, codes, items: Collection[str] | None = None
+                        ) -> tuple[pd.DataFrame, list[tuple[str, int]], list[tuple[str, float, int]]]:
+    """``frame`` with the cells of numbers holding one of ``codes`` (--missing-codes) read as no answer in the item
+    columns ``items`` (every column when None: no model yet), the (column, cells) read so, and the (column, code,
+    cells) of other columns that hold a code and keep it: a group, cluster or weight column's 9 is the value
+    'Grade 9' more often than a code of no answer (new-user trial 9: --missing-codes 9 emptied grade 9 and its
+    rows left the analysis)."""
+    read_as_none: list[tuple[str, int]] = []
+    kept: list[tuple[str, float, int]] = []
+    if not codes:
+        return frame, read_as_none, kept
+    frame = frame.copy()
+    mine = None if items is None else {str(x) for x in items}
+    for column in frame.columns:
+        if not pd.api.types.is_numeric_dtype(frame[column]):
+            continue
+        coded = frame[column].isin(codes)
+        if not coded.any():
+            continue
+        if mine is None or str(column) in mine:
+            read_as_none.append((column, int(coded.sum())))
+            frame[column] = frame[column].where(~coded)
+        else:
+            for code in codes:
+                cells = int((frame[column] == code).sum())
+                if cells:
+                    kept.append((column, code, cells))
+    return frame, read_as_none, kept
+
+
+def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int]]) -> str:
+    """The note on codes given with --missing-codes that columns other than the items hold and keep as values."""
+    shown = "; ".join(f"'{printable(str(column))}' holds {code:g} in {cells} {'row' if cells == 1 else 'rows'}"
+                      for column, code, cells in kept[:NAMED_COLUMNS])
+    more = f" and {len(kept) - NAMED_COLUMNS} more" if len(kept) > NAMED_COLUMNS else ""
+    column, code, _ = kept[0]
+    return (f"{base_name(source)}: --missing-codes applies to the model's items; other columns keep such a value as "
+            f"it is ({shown}{more}); to leave those rows out, give a row filter such as "
+            f"--keep \"{printable(str(column))} != {code:g}\"")

@@ -22,7 +22,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.missing_codes import missing_codes_note
+from cfa_tool.data.missing_codes import apply_missing_codes, kept_codes_note, missing_codes_note
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
 from cfa_tool.errors import DataError, printable
 from cfa_tool.input_files import check_input_path, input_bytes, utf16_text
@@ -116,21 +116,14 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     mine = None if items is None else {str(x) for x in items}
     as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
     frame, written = written_non_answers(loaded.frame, as_written)  # before the codes: 'refused' made a column text
-    read_as_none = []  # (column, cells) that --missing-codes turned into no answer
-    if missing_codes:
-        frame = frame.copy()
-        for column in frame.columns:
-            if pd.api.types.is_numeric_dtype(frame[column]):
-                coded = frame[column].isin(missing_codes)
-                if coded.any():
-                    read_as_none.append((column, int(coded.sum())))
-                    frame[column] = frame[column].where(~coded)
+    frame, read_as_none, kept = apply_missing_codes(frame, missing_codes, mine)  # in the items only
     frame, labelled = labelled_non_answers(frame, {c: v for c, v in loaded.value_labels.items() if c not in as_written},
                                            tuple(missing_codes))
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
     if missing_codes:
-        loaded = replace(loaded, notes=loaded.notes + (missing_codes_note(path, missing_codes, read_as_none),))
+        loaded = replace(loaded, notes=loaded.notes + (missing_codes_note(path, missing_codes, read_as_none),)
+                         + ((kept_codes_note(path, kept),) if kept else ()))
     return loaded
 
 
