@@ -182,6 +182,11 @@ def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None) -> list[str]:
             if len(shared) > 1:
                 notes.append(f"the answers {' and '.join(repr(printable(w)) for w in shared)} share the code {code:g} "
                              f"({coding.origin}), so they are analysed as one answer")
+        for answer in coding.answers:  # the statement decides: such a word is an answer, and the report says so
+            if answer.word is not None and says_no_answer(answer.word):
+                notes.append(f"'{printable(answer.word)}', a word that usually means no answer, is analysed as the "
+                             f"answer {answer.code:g} because {coding.origin} codes it so (leave it out of the "
+                             f"statement to read it as no answer)")
     return notes
 
 

@@ -25,6 +25,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
+from cfa_tool.language.spec import answer_key
 from cfa_tool.errors import printable
 from cfa_tool.numbers import number
 from cfa_tool.input_files import base_name
@@ -254,10 +255,12 @@ def declared_missing(frame: pd.DataFrame, ranges: dict, value_labels: dict) -> t
     return out, tuple(found)
 
 
-def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = ()) -> tuple[pd.DataFrame, tuple[NonAnswer, ...]]:
+def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = (),
+                        listed: dict[str, frozenset[str]] | None = None) -> tuple[pd.DataFrame, tuple[NonAnswer, ...]]:
     """``frame`` with text cells that say no answer ('refused', "don't know") read as missing in columns that hold
     numbers otherwise (such a cell made the whole column text), and what was read so; ``keep_text`` (id columns)
-    are left as written."""
+    are left as written; ``listed``: each column's words (matching keys) an 'answers' statement gives a code, which
+    are answers whatever they say ('"Don't know" = 3': the model file decides, not this vocabulary)."""
     found: list[NonAnswer] = []
     out = frame
     for column in frame.columns:
@@ -266,7 +269,8 @@ def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = ()) ->
                 series.dtype == object or pd.api.types.is_string_dtype(series)):
             continue
         distinct = [v for v in series.dropna().unique() if isinstance(v, str)]
-        said = [v for v in distinct if says_no_answer(v)]  # distinct texts
+        coded = (listed or {}).get(column, frozenset())
+        said = [v for v in distinct if says_no_answer(v) and answer_key(v) not in coded]  # distinct texts
         if said and any(number(v.strip()) is None for v in distinct if v not in said):
             # a column of words (answers recorded as words, group labels): a middle answer such as 'Not sure' is
             # one of its answers, never read as missing (an 'answers' statement codes it)

@@ -77,12 +77,14 @@ STATA_SUFFIXES = (".dta",)
 
 
 def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-              text_columns: tuple[str, ...] = (), items: Collection[str] | None = None) -> LoadedData:
+              text_columns: tuple[str, ...] = (), items: Collection[str] | None = None,
+              listed: dict[str, frozenset[str]] | None = None) -> LoadedData:
     """Any supported file -> LoadedData; ``missing_codes`` are values that mean 'no answer'; ``text_columns``
     (an id column) are read from delimited text as written ('007' stays '007').  ``items``: the model's item
     columns, the only ones whose text cells and value labels that say no answer ('Not applicable', 9 'refused') are
     read as missing (data.non_answers); a group, id, weight or cluster column keeps such a value as it is (a group
-    named 'N/A' stays a group).  None (no model yet): every column but ``text_columns``."""
+    named 'N/A' stays a group).  None (no model yet): every column but ``text_columns``.  ``listed``: each item's
+    words that the model's 'answers' statements code, answers whatever they say."""
     path = Path(path)
     suffix = path.suffix.lower()
     binary = suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES
@@ -115,7 +117,7 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = _numbers_from_text(loaded, text_columns)
     mine = None if items is None else {str(x) for x in items}
     as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
-    frame, written = written_non_answers(loaded.frame, as_written)  # before the codes: 'refused' made a column text
+    frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
     frame, read_as_none, kept = apply_missing_codes(frame, missing_codes, mine)  # in the items only
     frame, labelled = labelled_non_answers(frame, {c: v for c, v in loaded.value_labels.items() if c not in as_written},
                                            tuple(missing_codes))

@@ -108,7 +108,7 @@ def of_summary_statistics(result, moments, notes) -> object:
 
 
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-              text_columns: tuple[str, ...] = (), items=None) -> LoadedData:
+              text_columns: tuple[str, ...] = (), items=None, listed=None) -> LoadedData:
     """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to)."""
     missing_codes = missing_codes_option(missing_codes)
     if isinstance(data, pd.DataFrame):
@@ -124,7 +124,8 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
-        return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items)
+        return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items,
+                         listed=listed)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -153,7 +154,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     keep = keep_option(keep)
     spec = load_spec(model)
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
-    loaded = load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items)
+    listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
+    loaded = load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed)
     frame = loaded.frame
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
     columns = [c if type(c) is str else str(c) for c in labels]
