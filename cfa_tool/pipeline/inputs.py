@@ -447,23 +447,52 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict) -> tuple:
     if len(items) < 2:
         return ()
     values = frame[items].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
-    found = same_answer_rows(values, row_numbers(frame), np.array([x in declared for x in items]))
+    middles = np.array([sum(declared[x]) / 2 if x in declared else np.nan for x in items])
+    found = same_answer_rows(values, row_numbers(frame), np.array([x in declared for x in items]), middles)
     if found is None:
         return ()
-    shown = [f"{r} ({printable(ids[r])})" if ids.get(r) is not None else str(r)
-             for r in found.rows[:SAME_ANSWER_ROWS_SHOWN]]
-    more = len(found.rows) - len(shown)
+
+    def listed(which: list[int], skipped: bool = False) -> str:
+        """The rows by data-row number (and id); ``skipped``: say of a row that left reverse-worded items out how
+        many of them it answered."""
+        def one_row(k: int) -> str:
+            r = found.rows[k]
+            said = [printable(ids[r])] if ids.get(r) is not None else []
+            if skipped and found.reversed_answered[k] < found.reversed_items:
+                said.append(f"{found.reversed_answered[k]} of the {found.reversed_items} reverse-worded items answered")
+            return f"{r} ({'; '.join(said)})" if said else str(r)
+        shown = [one_row(k) for k in which[:SAME_ANSWER_ROWS_SHOWN]]
+        more = len(which) - len(shown)
+        return f"data row{'' if len(which) == 1 else 's'} {', '.join(shown)}" + (f" and {more} more" if more else "")
+
+    def gave(which: list[int]) -> str:
+        answers = sorted({found.answers[k] for k in which})
+        return (f"the answer {answers[0]:g}" if len(answers) == 1 else
+                "one answer each (" + ", ".join(f"{a:g}" for a in answers) + ")")
+
+    def rows_gave(which: list[int], what: str) -> str:
+        one = len(which) == 1
+        return f"{len(which)} {'row' if one else 'rows'} gave {what} to every item {'it' if one else 'they'} answered"
+
+    against = [k for k, c in enumerate(found.contradicts) if c]
+    middle = [k for k, c in enumerate(found.contradicts) if not c]
+    parts = []
+    if against:
+        # what each row answered: a row that skipped a reverse-worded item is not said to have answered it
+        every = all(found.reversed_answered[k] == found.reversed_items for k in against)
+        included = f"the {found.reversed_items} reverse-worded items included" if every else "reverse-worded items included"
+        parts.append(f"{rows_gave(against, gave(against))}, {included} ({listed(against, skipped=True)}): agreeing alike with an "
+                     f"item and its reversal suggests careless responding (a long string of identical answers; Johnson "
+                     f"2005, Curran 2016).")
+    if middle:
+        one = len(middle) == 1
+        parts.append(f"{rows_gave(middle, gave(middle))} ({listed(middle)}): the middle of the scale, which reversing "
+                     f"leaves unchanged, so {'it agrees' if one else 'they agree'} with the reverse-worded items, but a "
+                     f"long string of identical answers can still mean careless responding (Johnson 2005, Curran 2016).")
     n = len(found.rows)
     one = n == 1
-    answers = sorted(set(found.answers))
-    gave = (f"the answer {answers[0]:g}" if len(answers) == 1 else
-            "one answer each (" + ", ".join(f"{a:g}" for a in answers) + ")")
-    rows = f"data row{'' if one else 's'} {', '.join(shown)}" + (f" and {more} more" if more else "")
     return (Problem(ProblemKind.SAME_ANSWER_ROWS, (), float(n),
-                    f"{n} {'row' if one else 'rows'} gave {gave} to every item {'it' if one else 'they'} answered, the "
-                    f"{found.reversed_items} reverse-worded items included ({rows}): agreeing alike with an item and "
-                    f"its reversal suggests careless responding (a long string of identical answers; Johnson 2005, "
-                    f"Curran 2016). {'It is' if one else 'They are'} kept in this analysis.",
+                    " ".join(parts) + f" {'It is' if one else 'They are'} kept in this analysis.",
                     f"check {'this row' if one else 'these rows'} in the data; if {'it was' if one else 'they were'} "
                     f"not answered with care, fit again without {'it' if one else 'them'} (a --keep filter on an id "
                     f"column, or deleting {'it' if one else 'them'} from a copy of the file) and compare the results."),)
