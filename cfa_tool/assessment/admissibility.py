@@ -64,6 +64,9 @@ class ProblemKind(enum.Enum):
     GROUP_LABELS_BY_CASE = ("group labels differing only in case", "labels differing only in case", False)
     # not of the solution but of the data: an item answered by few of the rows (pipeline.inputs.with_odd_values)
     FEW_ANSWERS = ("item answered by few rows", "answered by few rows", False)
+    # not of the solution but of the data: an item answered alike by all rows but a few (the same rule, extended:
+    # its variance rests on those rows; pipeline.inputs.few_answers_problems)
+    NEARLY_CONSTANT = ("item answered alike by nearly every row", "nearly constant", False)
     # a method or bifactor-like factor whose standardized loadings are all small (assessment.method_factors)
     WEAK_METHOD_FACTOR = ("weak method factor", "small loadings only", False)
     # a factor whose loadings mostly run against its items' keying (assessment.reliability.keying_problems): its
@@ -181,6 +184,7 @@ class Problem:
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",
             K.FEW_ANSWERS: "items answered by few of the rows",
+            K.NEARLY_CONSTANT: "items answered alike by all rows but a few",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
             K.SMALL_GROUP: f"fewer rows ({v.split('.')[0]}) than free parameters of the group's model",

@@ -424,7 +424,7 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None):
     """``result`` (anything with ``problems``) with the cautions about its data before its own: those of
     :func:`odd_value_problems` (with the ``group`` column's) and of :func:`few_answers_problems`; the fit is not
     refused, since the user may know better."""
-    found = tuple(p for p in odd_value_problems(loaded, group) + few_answers_problems(result)
+    found = tuple(p for p in odd_value_problems(loaded, group) + few_answers_problems(result, loaded, group)
                   if p not in result.problems)  # said once (scores of the fitted file, say)
     return replace(result, problems=found + tuple(result.problems)) if found else result
 
@@ -509,15 +509,19 @@ def with_same_answer_rows(result, frame: pd.DataFrame, spec: Spec, ids: dict):
 FEW_ANSWERS_SHARE = 0.10
 
 
-def few_answers_problems(result) -> tuple:
-    """A caution naming the items answered by fewer than :data:`FEW_ANSWERS_SHARE` of the rows analysed (the
-    result's missing-data coverage; an item answered by 5 of 480 rows can drive the fit indices alone)."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind
-
+def few_answers_problems(result, loaded: LoadedData | None = None, group: str | None = None) -> tuple:
+    """Cautions naming the items whose variance rests on few rows: those answered by fewer than
+    :data:`FEW_ANSWERS_SHARE` of the rows analysed (the result's missing-data coverage; an item answered by 5 of 480
+    rows can drive the fit indices alone), and, from the rows of ``loaded`` analysed (with a ``group`` column, those
+    with a label), those answered alike by all rows but a few (data.descriptives.nearly_constant_items: the few
+    rows set the size and the sign of the item's loading, and so whether the keyed sums reverse it)."""
+    constant = _nearly_constant_problems(result, loaded, group)
     coverage = (getattr(result, "missing_data", None) or {}).get("coverage", {})
     few = {x: share for x, share in coverage.items() if share < FEW_ANSWERS_SHARE}
     if not few:
-        return ()
+        return constant
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
     n = result.n_obs
     listed = ", ".join(f"'{printable(x)}' ({round(share * n)} of {n} rows)" for x, share in list(few.items())[:5]) + (
         f" and {len(few) - 5} more" if len(few) > 5 else "")
@@ -526,7 +530,35 @@ def few_answers_problems(result) -> tuple:
                     f"Few rows answer {'the item' if one else 'the items'} {listed}: {'its' if one else 'their'} "
                     f"variance, covariances and loading rest on those answers alone, and can drive the fit indices.",
                     f"leave {'it' if one else 'them'} out of the model, or check why so few rows answer "
-                    f"{'it' if one else 'them'} (a question put to a few respondents only, an import that lost answers)."),)
+                    f"{'it' if one else 'them'} (a question put to a few respondents only, an import that lost answers)."),
+            ) + constant
+
+
+def _nearly_constant_problems(result, loaded: LoadedData | None, group: str | None) -> tuple:
+    """The caution of :func:`few_answers_problems` on items answered alike by all rows but a few."""
+    from cfa_tool.data.descriptives import nearly_constant_items
+
+    names = tuple(getattr(result, "observed", ()) or ())
+    if loaded is None or not names:
+        return ()
+    values = item_values(_labelled(loaded.frame, group), names)
+    if values is None:  # not plain numbers: the reading of the items names what is wrong
+        return ()
+    found = nearly_constant_items(values, names)
+    if not found:
+        return ()
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    one = len(found) == 1
+    listed = "; ".join(f"'{printable(c.name)}' is {c.common:g} in all but {c.others} of the {c.answered} rows "
+                       f"answering it" for c in found[:5]) + (f"; and {len(found) - 5} more" if len(found) > 5 else "")
+    return (Problem(ProblemKind.NEARLY_CONSTANT, (), float(min(c.others for c in found)),
+                    f"Nearly constant {'item' if one else 'items'}: {listed}. {'Its' if one else 'Their'} variance, "
+                    f"and the size and sign of {'its' if one else 'their'} loading, rest on those few rows alone, and "
+                    f"so does whether the keyed sum scores reverse {'it' if one else 'them'}; analysed as ordered "
+                    f"categories, a category of so few rows leaves the polychoric correlations undetermined.",
+                    f"leave {'it' if one else 'them'} out of the model, or check the data ({'it' if one else 'they'} "
+                    f"may have been recoded or imported wrongly, or the question asked of few respondents)."),)
 
 
 def analysed_odd_values(loaded: LoadedData, spec: Spec, group: str | None) -> LoadedData:
