@@ -75,6 +75,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the data: rows that gave one answer to every item, reverse-worded ones included
     # (data.same_answers), kept in the analysis
     SAME_ANSWER_ROWS = ("same answer to every item", "same answer throughout", False)
+    # not of the solution but of the data: a 'reversed ... on MIN to MAX' scale that no answer reaches at one end
+    # (pipeline.inputs.scale_ends_problems): the keyed sums' means depend on the scale declared
+    SCALE_ENDS_UNREACHED = ("declared scale wider than the answers", "scale ends unreached", False)
     # not of the solution but of the data: a group with fewer rows than its model has free parameters
     SMALL_GROUP = ("group smaller than its model", "fewer rows than parameters", False)
     # not of the solution but of the data scored with an earlier fit (workflows.factor_scores): rows in groups the fit
@@ -184,6 +187,7 @@ class Problem:
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",
             K.FEW_ANSWERS: "items answered by few of the rows",
+            K.SCALE_ENDS_UNREACHED: "a scale declared for reverse-keyed items whose ends no answer reaches",
             K.NEARLY_CONSTANT: "items answered alike by all rows but a few",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",

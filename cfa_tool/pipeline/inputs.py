@@ -338,6 +338,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     result = with_missing_reading(with_odd_values(result, loaded, group), loaded, missing_codes)
     if spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         result = with_same_answer_rows(result, _labelled(frame, group), spec, ids_by_row_number(ids, frame))
+        found = tuple(p for p in scale_ends_problems(_labelled(frame, group), spec) if p not in result.problems)
+        result = replace(result, problems=found + tuple(result.problems)) if found else result
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 
@@ -496,6 +498,50 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict) -> tuple:
                     f"check {'this row' if one else 'these rows'} in the data; if {'it was' if one else 'they were'} "
                     f"not answered with care, fit again without {'it' if one else 'them'} (a --keep filter on an id "
                     f"column, or deleting {'it' if one else 'them'} from a copy of the file) and compare the results."),)
+
+
+def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:
+    """A caution for each 'reversed ... on MIN to MAX' statement whose declared scale no answer reaches, at either
+    end, among the rows analysed (``frame``) of the items it covers (its own and their factors' other items,
+    data.matching.declared_scales; a partner with answers outside the scale is answered on another one and left
+    out): a reversed answer x counts as MIN + MAX - x in the keyed sums, so a scale declared wider than the one
+    answered shifts the keyed sums' means silently (their spread, correlations and omega do not change)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.matching import declared_scales
+
+    by_statement: dict[int, tuple[object, list[str]]] = {}
+    for name, (low, high, keying, named) in declared_scales(spec, frame).items():
+        by_statement.setdefault(id(keying), (keying, []))[1].append(name)
+    out = []
+    for keying, names in by_statement.values():
+        values = item_values(frame, [x for x in spec.observed_names if x in names])
+        if values is None or not np.isfinite(values).any():
+            continue
+        answered = np.isfinite(values)
+        inside = ~np.any(answered & ((values < keying.minimum) | (values > keying.maximum)), axis=0)
+        own = np.array([x in {i.text for i in keying.items} for x in spec.observed_names if x in names])
+        values, answered = values[:, inside | own], answered[:, inside | own]
+        low, high = float(values[answered].min()), float(values[answered].max())
+        if low <= keying.minimum and high >= keying.maximum:
+            continue
+        unreached = [f"{v:g}" for v in (keying.minimum, keying.maximum)
+                     if (v < low if v == keying.minimum else v > high)]
+        reversed_items = ", ".join(i.text for i in keying.items)
+        shift = (keying.minimum + keying.maximum) - (low + high)
+        effect = (f"if the answer scale is {low:g} to {high:g}, each reversed answer counts {abs(shift):g} too "
+                  f"{'high' if shift > 0 else 'low'}, and each keyed sum's mean by as much for every reversed item in it "
+                  f"(their spread, correlations and omega do not change)" if shift else
+                  f"the keyed sums would be the same on {low:g} to {high:g}")
+        out.append(Problem(
+            ProblemKind.SCALE_ENDS_UNREACHED, (), float(len(unreached)),
+            f"The 'reversed' statement on line {keying.location.line} declares answers from {keying.minimum:g} to "
+            f"{keying.maximum:g} for {reversed_items}, but no answer of the items it covers reaches "
+            f"{' or '.join(unreached)}: they run from {low:g} to {high:g} in {len(values)} rows. A reversed answer x "
+            f"counts as {keying.minimum + keying.maximum:g} - x in the keyed sums; {effect}.",
+            f"give the questionnaire's own lowest and highest answers in the 'reversed' statement (on {low:g} to "
+            f"{high:g} if that is the scale); if the scale really runs from {keying.minimum:g} to {keying.maximum:g}, "
+            f"the keyed sums are right as they are."))
+    return tuple(out)
 
 
 def with_same_answer_rows(result, frame: pd.DataFrame, spec: Spec, ids: dict):

@@ -99,3 +99,27 @@ def test_the_middle_answer_is_its_own_reversal_and_skipped_items_are_not_counted
     assert "agreeing alike" not in said_of_row_4 and "middle of the scale" in said_of_row_4
     assert "8 (P008; 1 of the 2 reverse-worded items answered)" in text
     assert "the 2 reverse-worded items included" not in text
+
+
+def test_a_reversed_scale_wider_than_every_answer_is_named_first(rider_demo, rider_model):
+    # a hostile trial: 'reversed short_wait, clean on 1 to 7' on answers from 1 to 5 was taken silently and shifted
+    # the keyed sums' means by 2. The keyed sum is recomputed here with pandas (x counts as 1 + 7 - x, the statement's
+    # rule) as the check value of the shift the caution names.
+    data = rider_demo.copy()
+    data["short_wait"] = 6 - data["short_wait"]
+    data["clean"] = 6 - data["clean"]
+    assert data[["on_time", "short_wait", "accurate_info", "clean"]].max().max() == 5
+    wide = cfa_tool.fit(rider_model + "reversed short_wait, clean on 1 to 7\n", data)
+    right = cfa_tool.fit(rider_model + "reversed short_wait, clean on 1 to 5\n", data)
+    first = wide.problems[0]
+    assert first.kind is ProblemKind.SCALE_ENDS_UNREACHED
+    assert "declares answers from 1 to 7 for short_wait, clean, but no answer of the items it covers reaches 7" in first.explanation
+    assert "run from 1 to 5" in first.explanation and "each reversed answer counts 2 too high" in first.explanation
+    assert not any(p.kind is ProblemKind.SCALE_ENDS_UNREACHED for p in right.problems)
+    punctuality = next(r for r in wide.groups[0].reliability if r.factor == "punctuality")
+    items = list(punctuality.items)
+    complete = data[items].dropna()
+    by_hand = sum((8 - complete[x]) if x == "short_wait" else complete[x] for x in items)
+    assert punctuality.sum_score_mean == pytest.approx(by_hand.mean(), abs=0.05)  # the tool's rows may keep gaps
+    other = next(r for r in right.groups[0].reliability if r.factor == "punctuality")
+    assert punctuality.sum_score_mean - other.sum_score_mean == pytest.approx(2.0, abs=1e-9)
