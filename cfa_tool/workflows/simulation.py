@@ -221,11 +221,11 @@ def fitted_estimates(fitted) -> tuple[str, bool, bool, dict]:
         return "the fit result given", fitted.multigroup, bool(fitted.method.ordinal), payload
     from cfa_tool.model.saved_estimates import saved_fit_payload
 
-    source, from_file = "the result given", isinstance(fitted, (str, Path))
-    if from_file:
+    source = "the result given"
+    if isinstance(fitted, (str, Path)):
         source = f"'{printable(str(fitted))}'"
         fitted = input_json(fitted, "fit result", OptionError)
-    fitted = saved_fit_payload(fitted, source, from_file)
+    fitted = saved_fit_payload(fitted, source, marked=False)  # a fit's to_dict() saved by hand serves too
     return source, "groups" in fitted, bool(fitted.get("ordinal_items")), fitted
 
 
