@@ -65,6 +65,9 @@ class ProblemKind(enum.Enum):
     GROUP_LABELS_BY_CASE = ("group labels differing only in case", "labels differing only in case", False)
     # not of the solution but of the data: an item answered by few of the rows (pipeline.inputs.with_odd_values)
     FEW_ANSWERS = ("item answered by few rows", "answered by few rows", False)
+    # not of the solution but of the data: an item answered alike by all rows but a few (the same rule, extended:
+    # its variance rests on those rows; pipeline.inputs.few_answers_problems)
+    NEARLY_CONSTANT = ("item answered alike by nearly every row", "nearly constant", False)
     # a method or bifactor-like factor whose standardized loadings are all small (assessment.method_factors)
     WEAK_METHOD_FACTOR = ("weak method factor", "small loadings only", False)
     # a factor whose loadings mostly run against its items' keying (assessment.reliability.keying_problems): its
@@ -73,6 +76,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the data: rows that gave one answer to every item, reverse-worded ones included
     # (data.same_answers), kept in the analysis
     SAME_ANSWER_ROWS = ("same answer to every item", "same answer throughout", False)
+    # not of the solution but of the data: a 'reversed ... on MIN to MAX' scale that no answer reaches at one end
+    # (pipeline.inputs.scale_ends_problems): the keyed sums' means depend on the scale declared
+    SCALE_ENDS_UNREACHED = ("declared scale wider than the answers", "scale ends unreached", False)
     # not of the solution but of the data: a group with fewer rows than its model has free parameters
     SMALL_GROUP = ("group smaller than its model", "fewer rows than parameters", False)
     # not of the solution but of the data scored with an earlier fit (workflows.factor_scores): rows in groups the fit
@@ -213,6 +219,8 @@ class Problem:
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",
             K.FEW_ANSWERS: "items answered by few of the rows",
+            K.SCALE_ENDS_UNREACHED: "a scale declared for reverse-keyed items whose ends no answer reaches",
+            K.NEARLY_CONSTANT: "items answered alike by all rows but a few",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
             K.SMALL_GROUP: f"fewer rows ({v.split('.')[0]}) than free parameters of the group's model",

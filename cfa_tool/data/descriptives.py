@@ -61,9 +61,51 @@ def answer_extremes(values: np.ndarray, answered: np.ndarray | None = None) -> t
 FEW_CATEGORIES = 4
 
 
+#: an item whose answers are one value in all rows but fewer than this many (or than NEARLY_CONSTANT_SHARE of the rows
+#: answering it, whichever is more) is nearly constant: its variance, and its loading's size and sign, rest on those
+#: few rows (a rule of thumb of this project, not a published cutoff; it extends the rule for items answered by few
+#: rows, pipeline.inputs.few_answers_problems)
+NEARLY_CONSTANT_ROWS = 5
+NEARLY_CONSTANT_SHARE = 0.01
+
+
+@dataclass(frozen=True)
+class NearlyConstant:
+    """An item that all rows but ``others`` of the ``answered`` ones answered ``common``."""
+
+    name: str
+    common: float
+    others: int
+    answered: int
+
+
+def rare_answer_limit(answered: int) -> float:
+    """How few rows make an answer (or the answers other than the common one) rare among ``answered`` rows:
+    fewer than NEARLY_CONSTANT_ROWS, or than NEARLY_CONSTANT_SHARE of them when that is more."""
+    return max(NEARLY_CONSTANT_ROWS, NEARLY_CONSTANT_SHARE * answered)
+
+
+def nearly_constant_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[NearlyConstant, ...]:
+    """The items (columns of ``values``, gaps NaN) whose answers differ from their most common answer in at
+    least one row but fewer than :func:`rare_answer_limit` rows."""
+    found = []
+    for j, name in enumerate(names):
+        column = values[:, j]
+        column = column[np.isfinite(column)]
+        if not len(column):
+            continue
+        levels, counts = np.unique(column, return_counts=True)
+        others = len(column) - int(counts.max())
+        if 0 < others < rare_answer_limit(len(column)):
+            found.append(NearlyConstant(name, float(levels[counts.argmax()]), others, len(column)))
+    return tuple(found)
+
+
 def few_category_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[str, ...]:
     """The items (columns of ``values``, gaps NaN) answered in whole numbers spanning at most FEW_CATEGORIES
-    values (so at most that many categories), with two categories at least."""
+    values (so at most that many categories), with two categories at least; a nearly constant item
+    (:func:`nearly_constant_items`) is not among them: analysed as ordered categories its rare category leaves the
+    polychoric correlations undetermined, and a caution names it instead."""
     if not values.size:  # no rows (the reading of the data says so)
         return ()
     answered = ~np.isnan(values)
@@ -71,7 +113,11 @@ def few_category_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[str,
     with np.errstate(invalid="ignore"):
         whole = np.all(~answered | (values == np.round(values)), axis=0)
     few = whole & (high > low) & (high - low <= FEW_CATEGORIES - 1)
-    return tuple(name for name, flag in zip(names, few) if flag)
+    if not few.any():
+        return ()
+    candidates = tuple(name for name, flag in zip(names, few) if flag)
+    constant = {c.name for c in nearly_constant_items(values[:, few], candidates)}
+    return tuple(name for name in candidates if name not in constant)
 
 
 def few_category_note(values: np.ndarray, names: tuple[str, ...]) -> str | None:

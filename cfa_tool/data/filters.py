@@ -168,7 +168,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         absent = ""
         if f.operator in ("=", "!=") and not (values == target).any():  # a value no row has: which ones are there
             absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "
-                      f"{_present(values, target)})")
+                      f"{_present(values, target)})" + _case_hint(values, target))
         before = len(frame)
         frame = frame.loc[keep.to_numpy()]
         notes.append(f"row filter '{f}'{by_label} kept {len(frame)} of {before} rows{absent}")
@@ -196,6 +196,17 @@ def _present(values: pd.Series, target, shown: int = 8) -> str:
         texts = near + [t for t in texts if t not in near]
     more = f" and {len(texts) - shown} more" if len(texts) > shown else ""
     return ", ".join(printable(t) for t in texts[:shown]) + more
+
+
+def _case_hint(values: pd.Series, target) -> str:
+    """How a row filter matches text, said when no row has the text: exactly, upper and lower case included (unlike
+    the words of an 'answers' statement, which ignore case), with the labels present that differ only in case."""
+    if isinstance(target, float):
+        return ""
+    alike = sorted({str(v) for v in values.dropna() if str(v).casefold() == str(target).casefold()})
+    return ("; a row filter matches text exactly, upper and lower case included (unlike the words of an 'answers' "
+            "statement)" + (f": write {' or '.join(repr(printable(a)) for a in alike)} as the data have it"
+                            if alike else ""))
 
 
 def _cell_label(value) -> str:

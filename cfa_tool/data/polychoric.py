@@ -36,6 +36,7 @@ from scipy import optimize
 
 from cfa_tool.numerics import distributions as dist
 
+from cfa_tool.data.descriptives import rare_answer_limit
 from cfa_tool.data.moments import numeric_columns, row_numbers
 from cfa_tool.data.odd_values import code_like
 from cfa_tool.data.sample_design import DesignColumns, RowDesign, row_design
@@ -330,6 +331,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                         f"collect more answers")
     codes = np.where(present, 0, -1)  # -1: no answer
     categories, thresholds, threshold_if = [], [], []
+    rare: list[tuple[str, float, int]] = []  # (item, category, rows): categories too rare to place a threshold well
     mean_if, variance_if = [], []  # of the continuous items' means and variances (divisor N)
     if present.all() and w is None:  # the complete-data formulas, so that a fit without gaps is the listwise one to the last digit
         means, sds = data.mean(axis=0), data.std(axis=0)
@@ -380,6 +382,9 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         levels_j = item_levels
         codes[rows_j, j] = np.searchsorted(levels_j, x)
         counts = np.bincount(codes[rows_j, j], weights=None if w is None else w[rows_j], minlength=len(levels_j))
+        rows_each = counts if w is None else np.bincount(codes[rows_j, j], minlength=len(levels_j))
+        rare.extend((name, float(v), int(c)) for v, c in zip(levels_j, rows_each)
+                    if c < rare_answer_limit(int(rows_j.sum())))
         cumulative = np.cumsum(counts)[:-1] / n_j
         tau = dist.norm_ppf(cumulative)
         categories.append(tuple(float(v) for v in levels_j))
@@ -449,7 +454,9 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
     if np.linalg.eigvalsh(R)[0] <= 1e-8:
         gaps = pairwise and not present.all()
         raise DataError(f"{source}{where}: the polychoric correlation matrix is not positive definite; "
-                        f"some items may be near duplicates or some categories nearly empty"
+                        + (f"categories answered by very few rows: {_rare_listed(rare)} (merge such a category with "
+                           f"the next one in a copy of the data, or leave the item out)" if rare else
+                           "some items may be near duplicates or some categories nearly empty")
                         + ("; with missing answers, correlations from different rows need not fit together "
                            "(--incomplete-rows listwise uses the complete rows only)" if gaps else ""))
     n_obs = int(round(total)) if design is not None and design.kind is WeightKind.FREQUENCY else n
@@ -457,6 +464,12 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                           R, gamma, codes, means, sds, frozenset(continuous), joint_gamma,
                           pair_counts if pairwise else None, rows_design,
                           joint if rows_design is not None else None, mixed_gamma)
+
+
+def _rare_listed(rare: list[tuple[str, float, int]]) -> str:
+    """The rare categories of the ordinal items, by item ('clean' 4 (1 row))."""
+    shown = [f"'{printable(name)}' {v:g} ({c} row{'' if c == 1 else 's'})" for name, v, c in rare[:6]]
+    return ", ".join(shown) + (f" and {len(rare) - 6} more" if len(rare) > 6 else "")
 
 
 NEAR_DUPLICATE = 0.995  # a correlation this close to 1 in size means two items answer alike (the search stops at .999)

@@ -34,6 +34,16 @@ TOLERANCE = 1e-8
 AGAIN = "fit the model again rather than edit its result"
 
 
+def saved_fit_payload(payload: object, source: str, marked: bool = True) -> dict:
+    """``payload`` when it is a fit's JSON result (``fit --json``: a dict with an 'estimates' list and, when
+    ``marked``, cfa-tool's mark; a fit result's to_dict() has no mark), else the one error every command that reads
+    a saved fit gives (scores --from-fit, simulate and power-simulation --population-from), naming ``source``."""
+    if (not isinstance(payload, dict) or not isinstance(payload.get("estimates"), list)
+            or marked and payload.get("tool") != "cfa-tool"):
+        raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)")
+    return payload
+
+
 @dataclass(frozen=True)
 class SavedRow:
     """One estimate row of a saved fit: the parameter it names and its value; ``number`` is its place (from 1)."""

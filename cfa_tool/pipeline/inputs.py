@@ -347,6 +347,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     result = with_missing_reading(with_odd_values(result, loaded, group), loaded, missing_codes)
     if spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         result = with_same_answer_rows(result, _labelled(frame, group), spec, ids_by_row_number(ids, frame))
+        found = tuple(p for p in scale_ends_problems(_labelled(frame, group), spec) if p not in result.problems)
+        result = replace(result, problems=found + tuple(result.problems)) if found else result
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 
@@ -453,7 +455,7 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None):
     """``result`` (anything with ``problems``) with the cautions about its data before its own: those of
     :func:`odd_value_problems` (with the ``group`` column's) and of :func:`few_answers_problems`; the fit is not
     refused, since the user may know better."""
-    found = tuple(p for p in odd_value_problems(loaded, group) + few_answers_problems(result)
+    found = tuple(p for p in odd_value_problems(loaded, group) + few_answers_problems(result, loaded, group)
                   if p not in result.problems)  # said once (scores of the fitted file, say)
     return replace(result, problems=found + tuple(result.problems)) if found else result
 
@@ -476,26 +478,99 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict) -> tuple:
     if len(items) < 2:
         return ()
     values = frame[items].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
-    found = same_answer_rows(values, row_numbers(frame), np.array([x in declared for x in items]))
+    middles = np.array([sum(declared[x]) / 2 if x in declared else np.nan for x in items])
+    found = same_answer_rows(values, row_numbers(frame), np.array([x in declared for x in items]), middles)
     if found is None:
         return ()
-    shown = [f"{r} ({printable(ids[r])})" if ids.get(r) is not None else str(r)
-             for r in found.rows[:SAME_ANSWER_ROWS_SHOWN]]
-    more = len(found.rows) - len(shown)
+
+    def listed(which: list[int], skipped: bool = False) -> str:
+        """The rows by data-row number (and id); ``skipped``: say of a row that left reverse-worded items out how
+        many of them it answered."""
+        def one_row(k: int) -> str:
+            r = found.rows[k]
+            said = [printable(ids[r])] if ids.get(r) is not None else []
+            if skipped and found.reversed_answered[k] < found.reversed_items:
+                said.append(f"{found.reversed_answered[k]} of the {found.reversed_items} reverse-worded items answered")
+            return f"{r} ({'; '.join(said)})" if said else str(r)
+        shown = [one_row(k) for k in which[:SAME_ANSWER_ROWS_SHOWN]]
+        more = len(which) - len(shown)
+        return f"data row{'' if len(which) == 1 else 's'} {', '.join(shown)}" + (f" and {more} more" if more else "")
+
+    def gave(which: list[int]) -> str:
+        answers = sorted({found.answers[k] for k in which})
+        return (f"the answer {answers[0]:g}" if len(answers) == 1 else
+                "one answer each (" + ", ".join(f"{a:g}" for a in answers) + ")")
+
+    def rows_gave(which: list[int], what: str) -> str:
+        one = len(which) == 1
+        return f"{len(which)} {'row' if one else 'rows'} gave {what} to every item {'it' if one else 'they'} answered"
+
+    against = [k for k, c in enumerate(found.contradicts) if c]
+    middle = [k for k, c in enumerate(found.contradicts) if not c]
+    parts = []
+    if against:
+        # what each row answered: a row that skipped a reverse-worded item is not said to have answered it
+        every = all(found.reversed_answered[k] == found.reversed_items for k in against)
+        included = f"the {found.reversed_items} reverse-worded items included" if every else "reverse-worded items included"
+        parts.append(f"{rows_gave(against, gave(against))}, {included} ({listed(against, skipped=True)}): agreeing alike with an "
+                     f"item and its reversal suggests careless responding (a long string of identical answers; Johnson "
+                     f"2005, Curran 2016).")
+    if middle:
+        one = len(middle) == 1
+        parts.append(f"{rows_gave(middle, gave(middle))} ({listed(middle)}): the middle of the scale, which reversing "
+                     f"leaves unchanged, so {'it agrees' if one else 'they agree'} with the reverse-worded items, but a "
+                     f"long string of identical answers can still mean careless responding (Johnson 2005, Curran 2016).")
     n = len(found.rows)
     one = n == 1
-    answers = sorted(set(found.answers))
-    gave = (f"the answer {answers[0]:g}" if len(answers) == 1 else
-            "one answer each (" + ", ".join(f"{a:g}" for a in answers) + ")")
-    rows = f"data row{'' if one else 's'} {', '.join(shown)}" + (f" and {more} more" if more else "")
     return (Problem(ProblemKind.SAME_ANSWER_ROWS, (), float(n),
-                    f"{n} {'row' if one else 'rows'} gave {gave} to every item {'it' if one else 'they'} answered, the "
-                    f"{found.reversed_items} reverse-worded items included ({rows}): agreeing alike with an item and "
-                    f"its reversal suggests careless responding (a long string of identical answers; Johnson 2005, "
-                    f"Curran 2016). {'It is' if one else 'They are'} kept in this analysis.",
+                    " ".join(parts) + f" {'It is' if one else 'They are'} kept in this analysis.",
                     f"check {'this row' if one else 'these rows'} in the data; if {'it was' if one else 'they were'} "
                     f"not answered with care, fit again without {'it' if one else 'them'} (a --keep filter on an id "
                     f"column, or deleting {'it' if one else 'them'} from a copy of the file) and compare the results."),)
+
+
+def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:
+    """A caution for each 'reversed ... on MIN to MAX' statement whose declared scale no answer reaches, at either
+    end, among the rows analysed (``frame``) of the items it covers (its own and their factors' other items,
+    data.matching.declared_scales; a partner with answers outside the scale is answered on another one and left
+    out): a reversed answer x counts as MIN + MAX - x in the keyed sums, so a scale declared wider than the one
+    answered shifts the keyed sums' means silently (their spread, correlations and omega do not change)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.matching import declared_scales
+
+    by_statement: dict[int, tuple[object, list[str]]] = {}
+    for name, (low, high, keying, named) in declared_scales(spec, frame).items():
+        by_statement.setdefault(id(keying), (keying, []))[1].append(name)
+    out = []
+    for keying, names in by_statement.values():
+        values = item_values(frame, [x for x in spec.observed_names if x in names])
+        if values is None or not np.isfinite(values).any():
+            continue
+        answered = np.isfinite(values)
+        inside = ~np.any(answered & ((values < keying.minimum) | (values > keying.maximum)), axis=0)
+        own = np.array([x in {i.text for i in keying.items} for x in spec.observed_names if x in names])
+        values, answered = values[:, inside | own], answered[:, inside | own]
+        low, high = float(values[answered].min()), float(values[answered].max())
+        if low <= keying.minimum and high >= keying.maximum:
+            continue
+        unreached = [f"{v:g}" for v in (keying.minimum, keying.maximum)
+                     if (v < low if v == keying.minimum else v > high)]
+        reversed_items = ", ".join(i.text for i in keying.items)
+        shift = (keying.minimum + keying.maximum) - (low + high)
+        effect = (f"if the answer scale is {low:g} to {high:g}, each reversed answer counts {abs(shift):g} too "
+                  f"{'high' if shift > 0 else 'low'}, and each keyed sum's mean by as much for every reversed item in it "
+                  f"(their spread, correlations and omega do not change)" if shift else
+                  f"the keyed sums would be the same on {low:g} to {high:g}")
+        out.append(Problem(
+            ProblemKind.SCALE_ENDS_UNREACHED, (), float(len(unreached)),
+            f"The 'reversed' statement on line {keying.location.line} declares answers from {keying.minimum:g} to "
+            f"{keying.maximum:g} for {reversed_items}, but no answer of the items it covers reaches "
+            f"{' or '.join(unreached)}: they run from {low:g} to {high:g} in {len(values)} rows. A reversed answer x "
+            f"counts as {keying.minimum + keying.maximum:g} - x in the keyed sums; {effect}.",
+            f"give the questionnaire's own lowest and highest answers in the 'reversed' statement (on {low:g} to "
+            f"{high:g} if that is the scale); if the scale really runs from {keying.minimum:g} to {keying.maximum:g}, "
+            f"the keyed sums are right as they are."))
+    return tuple(out)
 
 
 def with_same_answer_rows(result, frame: pd.DataFrame, spec: Spec, ids: dict):
@@ -509,15 +584,19 @@ def with_same_answer_rows(result, frame: pd.DataFrame, spec: Spec, ids: dict):
 FEW_ANSWERS_SHARE = 0.10
 
 
-def few_answers_problems(result) -> tuple:
-    """A caution naming the items answered by fewer than :data:`FEW_ANSWERS_SHARE` of the rows analysed (the
-    result's missing-data coverage; an item answered by 5 of 480 rows can drive the fit indices alone)."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind
-
+def few_answers_problems(result, loaded: LoadedData | None = None, group: str | None = None) -> tuple:
+    """Cautions naming the items whose variance rests on few rows: those answered by fewer than
+    :data:`FEW_ANSWERS_SHARE` of the rows analysed (the result's missing-data coverage; an item answered by 5 of 480
+    rows can drive the fit indices alone), and, from the rows of ``loaded`` analysed (with a ``group`` column, those
+    with a label), those answered alike by all rows but a few (data.descriptives.nearly_constant_items: the few
+    rows set the size and the sign of the item's loading, and so whether the keyed sums reverse it)."""
+    constant = _nearly_constant_problems(result, loaded, group)
     coverage = (getattr(result, "missing_data", None) or {}).get("coverage", {})
     few = {x: share for x, share in coverage.items() if share < FEW_ANSWERS_SHARE}
     if not few:
-        return ()
+        return constant
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
     n = result.n_obs
     listed = ", ".join(f"'{printable(x)}' ({round(share * n)} of {n} rows)" for x, share in list(few.items())[:5]) + (
         f" and {len(few) - 5} more" if len(few) > 5 else "")
@@ -526,7 +605,35 @@ def few_answers_problems(result) -> tuple:
                     f"Few rows answer {'the item' if one else 'the items'} {listed}: {'its' if one else 'their'} "
                     f"variance, covariances and loading rest on those answers alone, and can drive the fit indices.",
                     f"leave {'it' if one else 'them'} out of the model, or check why so few rows answer "
-                    f"{'it' if one else 'them'} (a question put to a few respondents only, an import that lost answers)."),)
+                    f"{'it' if one else 'them'} (a question put to a few respondents only, an import that lost answers)."),
+            ) + constant
+
+
+def _nearly_constant_problems(result, loaded: LoadedData | None, group: str | None) -> tuple:
+    """The caution of :func:`few_answers_problems` on items answered alike by all rows but a few."""
+    from cfa_tool.data.descriptives import nearly_constant_items
+
+    names = tuple(getattr(result, "observed", ()) or ())
+    if loaded is None or not names:
+        return ()
+    values = item_values(_labelled(loaded.frame, group), names)
+    if values is None:  # not plain numbers: the reading of the items names what is wrong
+        return ()
+    found = nearly_constant_items(values, names)
+    if not found:
+        return ()
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+
+    one = len(found) == 1
+    listed = "; ".join(f"'{printable(c.name)}' is {c.common:g} in all but {c.others} of the {c.answered} rows "
+                       f"answering it" for c in found[:5]) + (f"; and {len(found) - 5} more" if len(found) > 5 else "")
+    return (Problem(ProblemKind.NEARLY_CONSTANT, (), float(min(c.others for c in found)),
+                    f"Nearly constant {'item' if one else 'items'}: {listed}. {'Its' if one else 'Their'} variance, "
+                    f"and the size and sign of {'its' if one else 'their'} loading, rest on those few rows alone, and "
+                    f"so does whether the keyed sum scores reverse {'it' if one else 'them'}; analysed as ordered "
+                    f"categories, a category of so few rows leaves the polychoric correlations undetermined.",
+                    f"leave {'it' if one else 'them'} out of the model, or check the data ({'it' if one else 'they'} "
+                    f"may have been recoded or imported wrongly, or the question asked of few respondents)."),)
 
 
 def analysed_odd_values(loaded: LoadedData, spec: Spec, group: str | None) -> LoadedData:

@@ -287,11 +287,25 @@ def _each_pair(names, results, test_pair, specs, likelihood: bool) -> tuple[list
                 boundary = boundary_of(specs[a], results[a], specs[b], results[b])
                 tests.extend(boundary.mark(t) for t in found)
             else:
-                if not likelihood:
-                    reason += ("; AIC and BIC do not exist for least-squares fits of ordinal items, so no "
-                               "information criterion compares them either")
-                not_nested.append(NotNested(names[a], names[b], reason, information_criteria=likelihood))
+                why = _no_information_criteria(results[a], results[b], likelihood)
+                not_nested.append(NotNested(names[a], names[b], reason + (f"; {why}" if why else ""),
+                                            information_criteria=not why))
     return tests, not_nested
+
+
+def _no_information_criteria(first: FitResult, second: FitResult, likelihood: bool) -> str:
+    """Why AIC and BIC cannot compare two fits ('' when both have them): the one rule every view and the JSON
+    follow (least-squares fits of ordinal items have no likelihood; a fit weighted by sampling weights has only a
+    pseudo-likelihood, so its AIC and BIC are not defined)."""
+    if not likelihood:
+        return "AIC and BIC do not exist for least-squares fits of ordinal items, so no information criterion compares them either"
+    if any(r.fit is None or r.fit.aic is None or r.fit.bic is None or not (np.isfinite(r.fit.aic) and np.isfinite(r.fit.bic))
+           for r in (first, second)):
+        weighted = any(r.design is not None and r.design.columns.weights is not None for r in (first, second))
+        return (("AIC and BIC are not defined for fits weighted by sampling weights (a weighted likelihood is a "
+                 "pseudo-likelihood)" if weighted else "AIC and BIC are not defined for these fits")
+                + ", so no information criterion compares them either")
+    return ""
 
 
 def _different_variables(first: Spec, second: Spec, first_name: str, second_name: str) -> str:

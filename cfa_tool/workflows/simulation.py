@@ -219,12 +219,13 @@ def fitted_estimates(fitted) -> tuple[str, bool, bool, dict]:
     if isinstance(fitted, FitResult):
         payload = fitted.to_dict()
         return "the fit result given", fitted.multigroup, bool(fitted.method.ordinal), payload
+    from cfa_tool.model.saved_estimates import saved_fit_payload
+
     source = "the result given"
     if isinstance(fitted, (str, Path)):
         source = f"'{printable(str(fitted))}'"
         fitted = input_json(fitted, "fit result", OptionError)
-    if not isinstance(fitted, dict) or not isinstance(fitted.get("estimates"), list):
-        raise OptionError(f"{source}: not a result written by 'cfa-tool fit --json' (it has no 'estimates' list)")
+    fitted = saved_fit_payload(fitted, source, marked=False)  # a fit's to_dict() saved by hand serves too
     return source, "groups" in fitted, bool(fitted.get("ordinal_items")), fitted
 
 

@@ -377,6 +377,15 @@ def test_row_filter_of_a_value_no_row_has_lists_the_values_nearest_first(hs_data
     assert any("kept 301 of 301 rows; no row has 'pasteur'" in w for w in kept_all.warnings)
     with pytest.raises(DataError, match=r"values present: 13, 14, 12, 15, 11, 16\)"):
         cfa_tool.fit(THREE_FACTORS, hs_data, keep=["ageyr = 13.2"])
+    # a hostile trial: filters match text with its case while 'answers' words do not; the error says so (the rule
+    # itself is unchanged: 'pasteur' still keeps no row), and names the label as the data write it
+    with pytest.raises(DataError, match=r"\(values present: Pasteur, Grant-White\); a row filter matches text exactly, "
+                                        r"upper and lower case included \(unlike the words of an 'answers' statement\): "
+                                        r"write 'Pasteur' as the data have it"):
+        cfa_tool.fit(THREE_FACTORS, hs_data, keep=["school = pasteur"])
+    with pytest.raises(DataError, match=r"Pasteur\); a row filter matches text exactly, upper and lower case "
+                                        r"included \(unlike the words of an 'answers' statement\)$"):
+        cfa_tool.fit(THREE_FACTORS, hs_data, keep=["school = Central"])
 
 
 def test_row_filter_on_true_and_false_cells_reads_them_as_spreadsheets_write_them(hs_data):

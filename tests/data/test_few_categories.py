@@ -106,3 +106,40 @@ def test_the_suggested_option_names_items_as_the_option_reads_them(tmp_path):
     import json
 
     assert json.loads(saved.read_text())["estimator"] != "maximum likelihood"  # the ordinal estimator
+
+
+def test_a_nearly_constant_item_is_named_first_and_its_rare_category_in_the_ordinal_refusal(rider_demo, rider_model):
+    # a hostile trial: 'clean' answered 3 by 479 rows and 4 by one was fitted with no caution, its loading's sign (set
+    # by that one row) reversed it in the keyed sums, the few-categories note offered --ordinal clean, and that fit
+    # then failed naming neither the item nor its one-row category. Check values counted by collections.Counter.
+    from collections import Counter
+
+    from cfa_tool.assessment.admissibility import ProblemKind
+    from cfa_tool.data.descriptives import nearly_constant_items
+    from cfa_tool.errors import DataError
+
+    data = rider_demo.copy()
+    data["clean"] = 3.0
+    data.loc[10, "clean"] = 4.0
+    counted = Counter(data["clean"].dropna().tolist())
+    assert counted == {3.0: len(data) - 1, 4.0: 1}
+    # the rule: all rows but fewer than 5 (or 1% of the rows answering, when more) give one answer
+    values = np.array([[1, 2, 1], [1, 2, 2], [1, 2, 1], [1, 2, 1], [1, 3, 1], [1, 2, 2]] * 100, dtype=float)
+    values[:4, 0] = 2.0  # 4 of 600 rows differ: fewer than 1% of 600 (6) -> nearly constant
+    values[:100, 1] = 3.0  # many differ -> not
+    found = nearly_constant_items(values, ("a", "b", "c"))
+    assert [(c.name, c.common, c.others, c.answered) for c in found] == [("a", 1.0, 4, 600)]
+    values[:7, 0] = 2.0  # 7 rows of 600 differ: not fewer than 6
+    assert nearly_constant_items(values, ("a", "b", "c")) == ()
+
+    result = cfa_tool.fit(rider_model, data)
+    first = result.problems[0]
+    assert first.kind is ProblemKind.NEARLY_CONSTANT and not first.kind.inadmissible
+    assert f"'clean' is 3 in all but 1 of the {len(data)} rows answering it" in first.explanation
+    assert "whether the keyed sum scores reverse it" in first.explanation
+    # the few-categories note no longer offers the ordinal analysis for it
+    assert not any("--ordinal clean" in w for w in result.warnings)
+    with pytest.raises(DataError, match=r"categories answered by very few rows: 'clean' 4 \(1 row\)"):
+        cfa_tool.fit(rider_model, data, ordinal="clean")
+    # ordinary data have no such caution
+    assert not any(p.kind is ProblemKind.NEARLY_CONSTANT for p in cfa_tool.fit(rider_model, rider_demo).problems)

@@ -73,3 +73,53 @@ def test_fit_and_scores_name_the_rows_first_by_their_ids_and_keep_them():
     assert not any(p.kind is ProblemKind.SAME_ANSWER_ROWS for p in cfa_tool.fit(MODEL, frame).problems)
     # and data without such rows have no caution (common practice: no false alarm on ordinary answers)
     assert not any(p.kind is ProblemKind.SAME_ANSWER_ROWS for p in cfa_tool.fit(MODEL + REVERSED, _answers()).problems)
+
+
+def test_the_middle_answer_is_its_own_reversal_and_skipped_items_are_not_counted():
+    # a hostile trial: on 1 to 5 the answer 3 reverses to 5 + 1 - 3 = 3 (the keyed-sum rule of the 'reversed'
+    # statement, worked by hand), so a row of 3s agrees with the keying; it was called 'agreeing alike with an item
+    # and its reversal'. A row that skipped a reversed item was said to have answered 'the 2 reverse-worded items'.
+    reversed_items = np.array([False, True, False, True])
+    middles = np.array([np.nan, 3.0, np.nan, 3.0])
+    values = np.array([[3, 3, 3, 3], [4, np.nan, 4, 4], [5, 5, 5, 5]], dtype=float)
+    found = same_answer_rows(values, np.array([4, 8, 9]), reversed_items, middles)
+    assert found.rows == (4, 8, 9) and found.contradicts == (False, True, True)
+    assert found.reversed_answered == (2, 1, 2) and found.reversed_items == 2
+    # on 1 to 6 no whole answer is its own reversal (3.5): 3 everywhere contradicts the keying
+    assert same_answer_rows(values[:1], np.array([4]), reversed_items, np.array([np.nan, 3.5, np.nan, 3.5])).contradicts == (True,)
+
+    frame = _answers()
+    items = [c for c in frame.columns if c != "respondent"]
+    frame.loc[3, items] = 3.0  # data row 4: the middle answer throughout
+    frame.loc[7, items] = 4.0  # data row 8: 4 throughout, but b3 (reversed) left blank
+    frame.loc[7, "b3"] = np.nan
+    text = cfa_tool.fit(MODEL + REVERSED, frame, id_column="respondent").problems[0].explanation
+    said_of_row_4 = text[text.index("P004"):]
+    assert "1 row gave the answer 4" in text and "agreeing alike" in text.split("P004")[0]
+    assert "agreeing alike" not in said_of_row_4 and "middle of the scale" in said_of_row_4
+    assert "8 (P008; 1 of the 2 reverse-worded items answered)" in text
+    assert "the 2 reverse-worded items included" not in text
+
+
+def test_a_reversed_scale_wider_than_every_answer_is_named_first(rider_demo, rider_model):
+    # a hostile trial: 'reversed short_wait, clean on 1 to 7' on answers from 1 to 5 was taken silently and shifted
+    # the keyed sums' means by 2. The keyed sum is recomputed here with pandas (x counts as 1 + 7 - x, the statement's
+    # rule) as the check value of the shift the caution names.
+    data = rider_demo.copy()
+    data["short_wait"] = 6 - data["short_wait"]
+    data["clean"] = 6 - data["clean"]
+    assert data[["on_time", "short_wait", "accurate_info", "clean"]].max().max() == 5
+    wide = cfa_tool.fit(rider_model + "reversed short_wait, clean on 1 to 7\n", data)
+    right = cfa_tool.fit(rider_model + "reversed short_wait, clean on 1 to 5\n", data)
+    first = wide.problems[0]
+    assert first.kind is ProblemKind.SCALE_ENDS_UNREACHED
+    assert "declares answers from 1 to 7 for short_wait, clean, but no answer of the items it covers reaches 7" in first.explanation
+    assert "run from 1 to 5" in first.explanation and "each reversed answer counts 2 too high" in first.explanation
+    assert not any(p.kind is ProblemKind.SCALE_ENDS_UNREACHED for p in right.problems)
+    punctuality = next(r for r in wide.groups[0].reliability if r.factor == "punctuality")
+    items = list(punctuality.items)
+    complete = data[items].dropna()
+    by_hand = sum((8 - complete[x]) if x == "short_wait" else complete[x] for x in items)
+    assert punctuality.sum_score_mean == pytest.approx(by_hand.mean(), abs=0.05)  # the tool's rows may keep gaps
+    other = next(r for r in right.groups[0].reliability if r.factor == "punctuality")
+    assert punctuality.sum_score_mean - other.sum_score_mean == pytest.approx(2.0, abs=1e-9)

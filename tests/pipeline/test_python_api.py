@@ -52,3 +52,14 @@ def test_cov_params_and_conf_int(hs_data):
     row = frame[(frame["kind"] == "loading") & (frame["variables"] == "visual, x2")].iloc[0]
     assert row["upper"] == pytest.approx(x2.estimate + stats.norm.ppf(0.95) * x2.se, rel=1e-10)
     assert len(frame) == sum(r.free for r in result.estimates)
+
+
+def test_the_readme_says_what_split_half_returns(hs_data):
+    # a hostile trial: the README said every result object has to_dict() while split_half returns a pair of them
+    from cfa_tool.resources import resource_dir
+
+    readme = " ".join((resource_dir("models").parent / "README.md").read_text().split())
+    assert "`split_half` returns a pair (a tuple) of two such results" in readme
+    pair = cfa_tool.split_half(THREE, hs_data, seed=3)
+    assert isinstance(pair, tuple) and len(pair) == 2
+    assert all(callable(r.to_dict) and callable(r.summary) for r in pair)

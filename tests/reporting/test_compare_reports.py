@@ -112,3 +112,27 @@ def test_robust_figures_come_first_and_each_number_keeps_its_label(hs_data):
     assert named["Chi-square (unadjusted)"] == first.fit.chi_square and named["df"] == first.fit.df
     assert named["CFI (unadjusted)"] == first.fit.cfi and named["Robust CFI"] == first.robust.cfi_robust
     assert named["SRMR"] == first.fit.srmr and named["AIC"] == first.fit.aic
+
+
+def test_non_nested_weighted_models_are_not_said_to_be_compared_by_aic_and_bic(hs_data):
+    # a hostile trial: under sampling weights the table showed AIC and BIC 'not defined' while the methods paragraph
+    # said the models 'were compared by AIC and BIC', a note advised it and the JSON said they were comparable. A
+    # weighted log-likelihood is a pseudo-likelihood (Skinner 1989; Asparouhov 2005), so AIC and BIC do not exist.
+    import numpy as np
+
+    moved = "factor visual: x1, x2\nfactor textual: x3, x4, x5, x6\nfactor speed: x7, x8, x9\n"  # same df as THREE
+    plain = compare([THREE, moved], hs_data)
+    assert [n.information_criteria for n in plain.not_nested] == [True]
+    weights = np.random.default_rng(5).uniform(0.5, 2, len(hs_data))
+    weighted = compare([THREE, moved], hs_data.assign(w=weights), weights="w")
+    assert weighted.results[0].fit.aic is None and weighted.results[1].fit.bic is None
+    (pair,) = weighted.not_nested
+    assert not pair.information_criteria and "AIC and BIC are not defined" in pair.reason
+    assert weighted.to_dict()["not_nested"][0]["information_criteria_comparable"] is False
+    report = comparison_report(weighted)
+    assert not any("Compare them by AIC" in note for note in report.notes)
+    assert "compared by AIC and BIC" not in report.paragraph
+    # the unweighted pair keeps the advice, in the note and the paragraph alike
+    report = comparison_report(plain)
+    assert any("Compare them by AIC and BIC" in note for note in report.notes)
+    assert "compared by AIC and BIC" in report.paragraph

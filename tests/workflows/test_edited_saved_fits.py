@@ -261,3 +261,21 @@ def test_an_inadmissible_fit_is_refused_alike_in_python_and_on_the_command_line(
                         capsys)
     said = str(in_python.value).split(": ", 1)[1]  # the same words after the name of the fit
     assert code == 2 and said.startswith("the fitted solution is not admissible (it has ") and said in err, err
+
+
+@pytest.mark.parametrize("payload", [{"a": 1}, {"tool": "cfa-tool", "version": "1", "tests": []}, [1, 2]])
+def test_a_json_file_that_is_not_a_saved_fit_is_refused_in_one_wording(tmp_path, capsys, payload):
+    # a hostile trial: scores --from-fit and simulate / power-simulation --population-from refused the same file in
+    # two wordings; one writer (model.saved_estimates.saved_fit_payload) gives them one
+    (tmp_path / "m.cfa").write_text(THREE_FACTORS)
+    path = tmp_path / "other.json"
+    path.write_text(json.dumps(payload))
+    runs = [["scores", tmp_path / "m.cfa", "--data", HS_FILE, "--from-fit", path, "--output", tmp_path / "s.csv"],
+            ["simulate", tmp_path / "m.cfa", "--population-from", path, "--n", 50, "--output", tmp_path / "d.csv"],
+            ["power-simulation", tmp_path / "m.cfa", "--population-from", path, "--n", 50]]
+    errors = set()
+    for argv in runs:
+        code, _, err = _run(argv, capsys)
+        assert code == 2
+        errors.add(err.strip())
+    assert errors == {f"cfa-tool: '{path}' is not the JSON result of a fit by cfa-tool (fit --json)"}
