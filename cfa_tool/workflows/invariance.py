@@ -20,12 +20,12 @@ import pandas as pd
 from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_category_notes,
                                       make_options, moments_for, odd_value_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
-                                      with_missing_reading)
+                                      with_missing_reading, with_rows_read)
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
-from cfa_tool.pipeline.continuous import assess, estimate
+from cfa_tool.pipeline.continuous import FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, assess, estimate, rows_left_out
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
@@ -302,8 +302,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                                                           if _exempts_a_class_of(r, classes)))
             with threads:
                 est = ladder.estimate(level_spec, groups, fit_options, start)
-                result = with_missing_reading(ladder.assess(level_spec, groups, est, fit_options, group), loaded,
-                                              missing_codes)
+                # rows without a group label count as read, as fit counts them (the methods paragraph)
+                result = with_rows_read(with_missing_reading(ladder.assess(level_spec, groups, est, fit_options, group),
+                                                             loaded, missing_codes), loaded)
             if not result.converged:
                 why = next((p for p in result.problems if p.kind is not ProblemKind.SMALL_GROUP), None)
                 reason = (f" ({result.message}). {why.advice}" if why is not None else f" ({result.message})")
@@ -383,6 +384,13 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         warnings.insert(0, f"the {step.level} model's solution is not admissible ("
                            + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
                            + "): its fit and its difference test cannot show that invariance holds")
+    # rows left out for a gap, said as fit says it: a caution first when many were, else a note
+    configural = steps[0].result
+    left_out, left_notes = rows_left_out([(g.label, g.data.rows_dropped, g.data.rows_read, g.data.n_obs)
+                                          for g in configural.groups], configural.method.missing,
+                                         PAIRWISE_INSTEAD if configural.method.ordinal else FULL_INFORMATION_INSTEAD)
+    warnings[:0] = left_out
+    notes = list(notes) + left_notes
     differences, latent_note, not_estimated = latent_differences(steps)
     # groups with fewer rows than their configural model's free parameters: every step's comparison rests on them
     small = tuple(f"Group {p.group}: {p.line()}" for p in steps[0].result.problems if p.kind is ProblemKind.SMALL_GROUP)
