@@ -102,6 +102,12 @@ def test_invariance_with_robust_fits_each_step_with_the_robust_test_and_scales_i
     assert "maximum likelihood with the Satorra-Bentler scaled test and robust standard errors" in text
     assert "the difference test being the scaled chi-square difference test (Satorra & Bentler, 2001)" in text
     assert "each difference test is the scaled difference of those statistics (Satorra & Bentler 2001)" in text
+    # the table of differences names them as the table of levels names its statistic (a methods reviewer's reading)
+    from cfa_tool.reporting.reports import report_of
+
+    tables = {t.key: t for t in report_of(expected).tables}
+    assert tables["levels"].columns[1] == "Scaled chi-square (df)"
+    assert tables["steps"].columns[1] == "Scaled difference (df)"
     # as for fit and compare: ordinal items have their own adjusted test, so --robust is an error there
     proc = run("invariance", str(model), "--data", str(data), "--group-column", "school", "--robust", "--ordinal", "all")
     assert proc.returncode == 2 and "--robust cannot apply" in proc.stderr and "Traceback" not in proc.stderr
