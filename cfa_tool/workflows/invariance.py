@@ -230,7 +230,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     """Fit the invariance ladder; with ``partial='auto'`` free the likeliest culprits until each step holds.
     ``decide_by`` names how each step is judged (:class:`DecisionRule`).  A sampling design (``weights``,
     ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights every step, whose difference tests are
-    then the scaled ones of the design-based statistics.  ``progress(done, more)``, when given, hears of each
+    then the scaled ones of the design-based statistics; so are they with ``test='robust'`` (``--robust``, as for
+    ``fit``): every step is fitted with the robust test that suits its rows and tested against the one before by
+    the scaled difference (Satorra & Bentler 2001; their strictly positive version of 2010 when the 2001 correction
+    is not positive).  ``progress(done, more)``, when given, hears of each
     fit: the ladder's levels are announced at the start and every refit of the partial search when it is decided.
 
     With ordinal items (an 'ordinal' statement or ``ordinal``) the ladder is configural, thresholds,
@@ -316,8 +319,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 steps.append(InvarianceStep(level, result, None, False, ()))
                 stopped = (f"the {level} model did not converge{reason}; the ladder stops there"
                            + (", and the partial search could not run at this step" if partial != "none" else ""))
-                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + (stopped,),
-                                        rule, notes=tuple(notes))
+                left_out, left_notes = _rows_left_out(steps[0].result)
+                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
+                                        data_cautions + tuple(left_out) + (stopped,), rule,
+                                        notes=tuple(notes) + tuple(left_notes))
             with threads:
                 test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
             # an inadmissible solution (negative variances, ...) cannot show that invariance holds, whatever its fit;
@@ -379,23 +384,28 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         if step.level != "configural" and not step.holds and (
                 step.stopped in (STOP_NOTHING_LEFT, STOP_CAP.format(cap=MAX_FREED_PER_STEP))):
             warnings.append(f"the search at the {step.level} step stopped without the step holding: {step.stopped}")
+    # rows left out for a gap: a caution first when many were (after an inadmissible solution's), else a note
+    left_out, left_notes = _rows_left_out(steps[0].result)
+    warnings[:0] = left_out
+    notes = list(notes) + left_notes
     inadmissible = [s for s in steps if s.result.converged and not s.result.admissible]
     for step in reversed(inadmissible):  # problems first: an impossible solution outranks every other note
         warnings.insert(0, f"the {step.level} model's solution is not admissible ("
                            + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
                            + "): its fit and its difference test cannot show that invariance holds")
-    # rows left out for a gap, said as fit says it: a caution first when many were, else a note
-    configural = steps[0].result
-    left_out, left_notes = rows_left_out([(g.label, g.data.rows_dropped, g.data.rows_read, g.data.n_obs)
-                                          for g in configural.groups], configural.method.missing,
-                                         PAIRWISE_INSTEAD if configural.method.ordinal else FULL_INFORMATION_INSTEAD)
-    warnings[:0] = left_out
-    notes = list(notes) + left_notes
     differences, latent_note, not_estimated = latent_differences(steps)
     # groups with fewer rows than their configural model's free parameters: every step's comparison rests on them
     small = tuple(f"Group {p.group}: {p.line()}" for p in steps[0].result.problems if p.kind is ProblemKind.SMALL_GROUP)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + small + tuple(warnings), rule,
                             differences, latent_note, not_estimated, tuple(notes))
+
+
+def _rows_left_out(configural: FitResult) -> tuple[list[str], list[str]]:
+    """(cautions, notes) on the rows the ladder left out for gaps, in fit's words (pipeline.continuous.rows_left_out),
+    from its configural fit: every step is fitted to the same rows."""
+    return rows_left_out([(g.label, g.data.rows_dropped, g.data.rows_read, g.data.n_obs) for g in configural.groups],
+                         configural.method.missing,
+                         PAIRWISE_INSTEAD if configural.method.ordinal else FULL_INFORMATION_INSTEAD)
 
 
 def unsound_basis(steps, k: int):
