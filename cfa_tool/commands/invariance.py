@@ -22,6 +22,7 @@ def add_parser(sub) -> None:
     inv.add_argument("--decide-by", choices=tuple(m.value for m in DecisionRule), default="difference-test",
                      help="how each step is judged: the chi-square difference test (default), the change in CFI, RMSEA "
                           "and SRMR against common-practice guides, or both")
+    O.add_test_option(inv)
     O.add_ordinal_options(inv)
     O.add_incomplete_rows_option(inv)
     O.add_design_options(inv)
@@ -35,6 +36,7 @@ def run(args: argparse.Namespace) -> int:
     with progress("invariance: fits") as advance:
         result = invariance(Path(args.model), args.data, args.group, reference_group=args.reference_group,
                             partial=args.partial, alpha=args.alpha, decide_by=args.decide_by, sheet=args.sheet,
+                            test=O.fit_test(args),
                             missing_codes=args.missing_codes, keep=args.keep, ordinal=O.ordinal_arg(args.ordinal),
                             ordinal_estimator=args.ordinal_estimator, missing=args.missing, progress=advance,
                             **O.design_args(args))

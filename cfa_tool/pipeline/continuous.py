@@ -196,6 +196,44 @@ def fit_moments(spec: Spec, moments: SampleMoments | list[tuple[str | None, Samp
         return assess(spec, groups, est, options, group_column)
 
 
+#: what keeps the rows listwise deletion leaves out, by the kind of items
+FULL_INFORMATION_INSTEAD = "full-information ML (--incomplete-rows full-information)"
+PAIRWISE_INSTEAD = "pairwise present rows (the default for ordinal items, without --incomplete-rows listwise)"
+
+
+def listwise_line(dropped: int, read: int, analysed: int, where: str = "",
+                  instead: str = FULL_INFORMATION_INSTEAD) -> tuple[bool, str]:
+    """The one line on rows that listwise deletion left out for a missing answer, and whether it is a caution
+    (first in every view): more than :data:`LISTWISE_WARNING_SHARE` of the rows read, whose loss may bias the
+    estimates unless the answers are missing completely at random (Little & Rubin 2002).  ``instead`` names
+    what would use every answer they have."""
+    if dropped > LISTWISE_WARNING_SHARE * read:
+        return True, (f"listwise deletion left out {dropped} of {read} rows{where} ({100 * dropped / read:.0f}%) "
+                      f"because they miss an answer on a model variable; {instead} would use every answer they have, "
+                      f"and the rows left out may differ from those kept")
+    return False, (f"{dropped} of {read} rows{where} had a missing answer on a model variable and were left out "
+                   f"(listwise deletion); {analysed} rows were analysed")
+
+
+def rows_left_out(groups, missing: MissingData | None,
+                  instead: str = FULL_INFORMATION_INSTEAD) -> tuple[list[str], list[str]]:
+    """(cautions, notes) on the rows a fit left out, from ``groups``: (label or None, rows left out, rows read,
+    rows analysed) of each group; listwise deletion by :func:`listwise_line`, otherwise (full-information ML,
+    pairwise present rows) the rows that answered none of the model variables, in a note."""
+    cautions: list[str] = []
+    notes: list[str] = []
+    for label, dropped, read, analysed in groups:
+        if not dropped:
+            continue
+        where = f" in group '{label}'" if label is not None else ""
+        if missing is MissingData.LISTWISE or missing is None:
+            caution, line = listwise_line(dropped, read, analysed, where, instead)
+            (cautions if caution else notes).append(line)
+        else:
+            notes.append(f"{dropped} of {read} rows{where} answered none of the model variables and were left out")
+    return cautions, notes
+
+
 def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Estimation, options: FitOptions,
            group_column: str | None = None) -> FitResult:
     """Standard errors, fit indices, standardized values, modification indices and warnings."""
@@ -214,21 +252,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         standardized[sel], factors_standardized[sel] = standardize_entries(mats[g], codes, rows, cols, values[sel],
                                                                            layout)
 
-    warnings: list[str] = []
-    for label, m in groups:
-        if m.rows_dropped:
-            where = f" in group '{label}'" if label is not None else ""
-            if options.missing is MissingData.FULL_INFORMATION:
-                warnings.append(f"{m.rows_dropped} of {m.rows_read} rows{where} answered none of the model variables and "
-                                f"were left out")
-            elif m.rows_dropped > LISTWISE_WARNING_SHARE * m.rows_read:
-                warnings.insert(0, f"listwise deletion left out {m.rows_dropped} of {m.rows_read} rows{where} "
-                                   f"({100 * m.rows_dropped / m.rows_read:.0f}%) because they miss an answer on a model "
-                                   f"variable; full-information ML (--incomplete-rows full-information) would use every answer "
-                                   f"they have, and the rows left out may differ from those kept")
-            else:
-                warnings.append(f"{m.rows_dropped} of {m.rows_read} rows{where} had a missing answer on a model variable "
-                                f"and were left out (listwise deletion); {m.n_obs} rows were analysed")
+    cautions, notes = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs) for label, m in groups],
+                                    options.missing)
+    warnings: list[str] = cautions + notes
     fit = None
     robust = None
     inference = None

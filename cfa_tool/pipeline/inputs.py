@@ -682,17 +682,24 @@ def named_cases(result: FitResult, ids: dict) -> FitResult:
     return replace(result, groups=groups)
 
 
+def with_rows_read(result: FitResult, loaded: LoadedData) -> FitResult:
+    """``result`` (a fit of rows with groups or a sampling design) counting as read the rows without a group label
+    and the rows of weight 0 (each said in a note), so that the methods paragraph gives the rows left out of all
+    the rows read, as ``fit``, ``compare`` and ``invariance`` read them."""
+    if result.data.rows_read == len(loaded.frame):
+        return result
+    return replace(result, data=replace(result.data, rows_read=len(loaded.frame),
+                                        rows_dropped=result.data.rows_dropped + len(loaded.frame) - result.data.rows_read,
+                                        without_group=len(loaded.frame) - result.data.rows_read))
+
+
 def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
              design: DesignColumns | None = None) -> FitResult:
     """The fit of rows of raw data (after reading, filters and model checks), its data summary naming the
     row filters and the rows the file held before them."""
     result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
-    # rows without a group label, and rows of weight 0 (said in a note), count as read
-    if (group is not None or design is not None) and result.data.rows_read != len(loaded.frame):
-        result = replace(result, data=replace(result.data, rows_read=len(loaded.frame),
-                                              rows_dropped=result.data.rows_dropped
-                                              + len(loaded.frame) - result.data.rows_read,
-                                              without_group=len(loaded.frame) - result.data.rows_read))
+    if group is not None or design is not None:
+        result = with_rows_read(result, loaded)
     if not loaded.row_filters:
         return result
     return replace(result, data=replace(result.data, row_filters=loaded.row_filters,

@@ -38,7 +38,7 @@ from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
-from cfa_tool.pipeline.continuous import estimate_rows
+from cfa_tool.pipeline.continuous import PAIRWISE_INSTEAD, estimate_rows, listwise_line
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.pipeline.results import DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
@@ -132,8 +132,7 @@ def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
     if not moments.pairwise:
         if not moments.rows_dropped:
             return []
-        return [f"{moments.rows_dropped} of {moments.rows_read} rows{where} had a missing answer on a model variable and "
-                f"were left out (listwise deletion); {len(moments.codes)} rows were analysed"]
+        return [listwise_line(moments.rows_dropped, moments.rows_read, len(moments.codes), where, PAIRWISE_INSTEAD)[1]]
     out = []
     if moments.rows_dropped:
         out.append(f"{moments.rows_dropped} of {moments.rows_read} rows{where} answered no model variable and were left out")

@@ -426,6 +426,11 @@ def invariance_report(result) -> Report:
         steps = [row[:3] + row[6:] for row in steps]
         step_values = [row[:4] + row[7:] for row in step_values]
         delta_columns, delta_values = [], []
+    # the differences are the scaled ones when every step's is (a step that falls back to another says so in a note)
+    scaled = {DifferenceMethod.SATORRA_BENTLER_2001, DifferenceMethod.SATORRA_BENTLER_2010}
+    difference = ("Scaled difference (df)" if all(s.versus_previous.method in scaled for s in result.steps[1:]
+                                                  if s.versus_previous is not None) and len(result.steps) > 1
+                  else "Difference (df)")
     tables = [
         _table("levels", "Fit of each level", [("Level", "l"),
                                                 ("Scaled chi-square (df)" if adjusted else "Chi-square (df)", "r"),
@@ -434,7 +439,7 @@ def invariance_report(result) -> Report:
                flagged=tuple(flagged),
                values=(["Level", "Chi-square", "df", "p", "CFI", "RMSEA", "SRMR", "Admissible"], level_values)),
         _table("steps", "Each step against the one before",
-               [("Level", "l"), ("Difference (df)", "r"), ("p", "r"), *delta_columns, ("Holds", "l")], steps,
+               [("Level", "l"), (difference, "r"), ("p", "r"), *delta_columns, ("Holds", "l")], steps,
                " ".join(note for note, shown in (
                    (INADMISSIBLE_VERDICT_NOTE, any(not s.result.admissible for s in result.steps)),
                    (TEST_MET_NOTE, any(s.holds and unsound_basis(result.steps, k) is not None

@@ -20,12 +20,12 @@ import pandas as pd
 from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_category_notes,
                                       make_options, moments_for, odd_value_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
-                                      with_missing_reading)
+                                      with_missing_reading, with_rows_read)
 from cfa_tool.assessment.admissibility import ProblemKind, group_size_problems
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
-from cfa_tool.pipeline.continuous import assess, estimate
+from cfa_tool.pipeline.continuous import FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, assess, estimate, rows_left_out
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
@@ -230,7 +230,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     """Fit the invariance ladder; with ``partial='auto'`` free the likeliest culprits until each step holds.
     ``decide_by`` names how each step is judged (:class:`DecisionRule`).  A sampling design (``weights``,
     ``cluster``, ``strata``, ``weight_kind``, as for ``fit``) weights every step, whose difference tests are
-    then the scaled ones of the design-based statistics.  ``progress(done, more)``, when given, hears of each
+    then the scaled ones of the design-based statistics; so are they with ``test='robust'`` (``--robust``, as for
+    ``fit``): every step is fitted with the robust test that suits its rows and tested against the one before by
+    the scaled difference (Satorra & Bentler 2001; their strictly positive version of 2010 when the 2001 correction
+    is not positive).  ``progress(done, more)``, when given, hears of each
     fit: the ladder's levels are announced at the start and every refit of the partial search when it is decided.
 
     With ordinal items (an 'ordinal' statement or ``ordinal``) the ladder is configural, thresholds,
@@ -302,8 +305,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                                                           if _exempts_a_class_of(r, classes)))
             with threads:
                 est = ladder.estimate(level_spec, groups, fit_options, start)
-                result = with_missing_reading(ladder.assess(level_spec, groups, est, fit_options, group), loaded,
-                                              missing_codes)
+                # rows without a group label count as read, as fit counts them (the methods paragraph)
+                result = with_rows_read(with_missing_reading(ladder.assess(level_spec, groups, est, fit_options, group),
+                                                             loaded, missing_codes), loaded)
             if not result.converged:
                 why = next((p for p in result.problems if p.kind is not ProblemKind.SMALL_GROUP), None)
                 reason = (f" ({result.message}). {why.advice}" if why is not None else f" ({result.message})")
@@ -315,8 +319,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 steps.append(InvarianceStep(level, result, None, False, ()))
                 stopped = (f"the {level} model did not converge{reason}; the ladder stops there"
                            + (", and the partial search could not run at this step" if partial != "none" else ""))
-                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + (stopped,),
-                                        rule, notes=tuple(notes))
+                left_out, left_notes = _rows_left_out(steps[0].result)
+                return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
+                                        data_cautions + tuple(left_out) + (stopped,), rule,
+                                        notes=tuple(notes) + tuple(left_notes))
             with threads:
                 test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
             # an inadmissible solution (negative variances, ...) cannot show that invariance holds, whatever its fit;
@@ -380,6 +386,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         if step.level != "configural" and not step.holds and (
                 step.stopped in (STOP_NOTHING_LEFT, STOP_CAP.format(cap=MAX_FREED_PER_STEP))):
             warnings.append(f"the search at the {step.level} step stopped without the step holding: {step.stopped}")
+    # rows left out for a gap: a caution first when many were (after an inadmissible solution's), else a note
+    left_out, left_notes = _rows_left_out(steps[0].result)
+    warnings[:0] = left_out
+    notes = list(notes) + left_notes
     inadmissible = [s for s in steps if s.result.converged and not s.result.admissible]
     for step in reversed(inadmissible):  # problems first: an impossible solution outranks every other note
         warnings.insert(0, f"the {step.level} model's solution is not admissible ("
@@ -390,6 +400,14 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     small = tuple(f"Group {p.group}: {p.line()}" for p in steps[0].result.problems if p.kind is ProblemKind.SMALL_GROUP)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + small + tuple(warnings), rule,
                             differences, latent_note, not_estimated, tuple(notes))
+
+
+def _rows_left_out(configural: FitResult) -> tuple[list[str], list[str]]:
+    """(cautions, notes) on the rows the ladder left out for gaps, in fit's words (pipeline.continuous.rows_left_out),
+    from its configural fit: every step is fitted to the same rows."""
+    return rows_left_out([(g.label, g.data.rows_dropped, g.data.rows_read, g.data.n_obs) for g in configural.groups],
+                         configural.method.missing,
+                         PAIRWISE_INSTEAD if configural.method.ordinal else FULL_INFORMATION_INSTEAD)
 
 
 def unsound_basis(steps, k: int):

@@ -74,3 +74,40 @@ def test_the_source_of_the_standard_errors_is_stated():
     assert "with standard errors from the observed information" in methods_paragraph(observed)
     robust = cfa_tool.fit(THREE_FACTORS, _hs(), test="robust")
     assert "information" not in robust.estimator and "robust standard errors" in robust.estimator
+
+
+def test_invariance_with_robust_fits_each_step_with_the_robust_test_and_scales_its_differences(tmp_path):
+    # a new-user trial: fit and compare had --robust, invariance had not, so a ladder of 4-point items without a
+    # sampling design was normal-theory ML with unscaled differences.  The figures of the robust ladder are
+    # checked against the published formulas in tests/workflows/test_invariance_robust_reference.py; here, that
+    # the command line asks for it and every view says so.
+    from cfa_tool.workflows.invariance import invariance
+
+    data = tmp_path / "hs.csv"
+    holzinger_swineford().to_csv(data, index=False)
+    model = tmp_path / "three.cfa"
+    model.write_text(THREE_FACTORS)
+    proc = run("invariance", str(model), "--data", str(data), "--group-column", "school", "--robust", "--json", "-")
+    assert proc.returncode == 0, proc.stderr
+    steps = json.loads(proc.stdout)["steps"]
+    expected = invariance(THREE_FACTORS, holzinger_swineford(), "school", test="robust")
+    for step, own in zip(steps, expected.steps):
+        assert step["robust"]["method"] == "Satorra-Bentler"
+        assert step["robust"]["chi_square_scaled"] == pytest.approx(own.result.robust.chi_square_scaled, rel=1e-8)
+    assert [s["versus_previous"]["method"] for s in steps[1:]] == ["Satorra-Bentler 2001 scaled difference"] * 3
+    assert steps[1]["versus_previous"]["chi_square_difference"] == pytest.approx(
+        expected.steps[1].versus_previous.chi_square_difference, rel=1e-8)
+    text = " ".join(run("invariance", str(model), "--data", str(data), "--group-column", "school",
+                        "--robust").stdout.split())
+    assert "maximum likelihood with the Satorra-Bentler scaled test and robust standard errors" in text
+    assert "the difference test being the scaled chi-square difference test (Satorra & Bentler, 2001)" in text
+    assert "each difference test is the scaled difference of those statistics (Satorra & Bentler 2001)" in text
+    # the table of differences names them as the table of levels names its statistic (a methods reviewer's reading)
+    from cfa_tool.reporting.reports import report_of
+
+    tables = {t.key: t for t in report_of(expected).tables}
+    assert tables["levels"].columns[1] == "Scaled chi-square (df)"
+    assert tables["steps"].columns[1] == "Scaled difference (df)"
+    # as for fit and compare: ordinal items have their own adjusted test, so --robust is an error there
+    proc = run("invariance", str(model), "--data", str(data), "--group-column", "school", "--robust", "--ordinal", "all")
+    assert proc.returncode == 2 and "--robust cannot apply" in proc.stderr and "Traceback" not in proc.stderr

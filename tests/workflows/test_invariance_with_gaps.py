@@ -77,3 +77,58 @@ def test_a_step_whose_2001_correction_is_not_positive_reads_the_strictly_positiv
     assert pair.change_guides_apply
     assert ("were read against conventional guides (Cheung & Rensvold, 2002; Chen, 2007)"
             in comparison_report(pair).paragraph)
+
+
+def test_rows_left_out_listwise_are_said_first_as_fit_says_them(holes):
+    # a new-user trial: 328 of 847 rows (39%) were left out listwise and invariance said only "519 rows analysed";
+    # fit says it, with a caution when the share is large.  The counts are the data's own (pandas, by school).
+    ladder = invariance(THREE_FACTORS, holes, "school", missing="listwise")
+    grouped = cfa_tool.fit(THREE_FACTORS, holes, group="school", missing="listwise")
+    for school, rows in holes.groupby("school"):
+        dropped = int(rows.isna().any(axis=1).sum())
+        assert dropped > 0.05 * len(rows)  # the share over which fit cautions (LISTWISE_WARNING_SHARE)
+        line = (f"listwise deletion left out {dropped} of {len(rows)} rows in group '{school}' "
+                f"({100 * dropped / len(rows):.0f}%) because they miss an answer on a model variable")
+        assert any(w.startswith(line) for w in ladder.warnings), ladder.warnings
+        assert any(w.startswith(line) for w in grouped.warnings)  # the same words as fit's
+    # first among the cautions about the ladder's steps (only the data's own cautions come before it)
+    assert ladder.warnings[0].startswith("listwise deletion left out")
+    # a small share is a note, as in fit
+    few = holzinger_swineford()[["school", *[f"x{i}" for i in range(1, 10)]]].copy()
+    few.loc[[3, 200], "x4"] = np.nan  # one row of each school (rows 3 and 200 are in different schools)
+    assert few.loc[[3, 200], "school"].nunique() == 2
+    ladder = invariance(THREE_FACTORS, few, "school", missing="listwise")
+    assert not any("left out" in w for w in ladder.warnings)
+    assert sum("had a missing answer on a model variable and were left out (listwise deletion)" in n
+               for n in ladder.notes) == 2
+
+
+def test_ordinal_rows_left_out_listwise_are_a_caution_naming_pairwise_rows(holes):
+    # ordinal items: the rows are kept by pairwise present rows unless listwise is asked for, and the caution says so
+    data = holes.copy()
+    for column in [f"x{i}" for i in range(1, 10)]:
+        data[column] = np.digitize(data[column], np.nanquantile(data[column], [0.25, 0.5, 0.75])).astype(float)
+        data.loc[holes[column].isna(), column] = np.nan
+    ladder = invariance(THREE_FACTORS, data, "school", ordinal="all", missing="listwise")
+    assert ladder.warnings[0].startswith("listwise deletion left out")
+    assert "pairwise present rows (the default for ordinal items" in ladder.warnings[0]
+
+
+def test_rows_without_a_group_label_are_counted_as_fit_counts_them(holes):
+    # a methods reviewer's reading of the ladder's paragraph: it gave the rows left out for gaps out of the rows with a
+    # group label only, and said nothing of the rows without one; fit gives both out of every row read
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    data = holes.copy()
+    data.loc[data.index[:7], "school"] = np.nan
+    ladder = invariance(THREE_FACTORS, data, "school", missing="listwise")
+    grouped = cfa_tool.fit(THREE_FACTORS, data, group="school", missing="listwise")
+    configural = ladder.steps[0].result
+    labelled = data.dropna(subset=["school"])
+    dropped = int(labelled.isna().any(axis=1).sum())  # counted by pandas
+    assert (configural.data.rows_read, configural.data.without_group) == (len(data), 7)
+    assert configural.data.rows_dropped == grouped.data.rows_dropped == dropped + 7
+    text = " ".join(ladder.summary().split())
+    assert f"{dropped} of {len(data)} rows with missing answers were excluded listwise" in text
+    assert f"7 of {len(data)} rows had no value in the group column (school) and were left out" in text
+    assert f"7 of {len(data)} rows had no value in the group column (school)" in methods_paragraph(grouped)
