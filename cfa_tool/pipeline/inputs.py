@@ -546,17 +546,25 @@ def named_cases(result: FitResult, ids: dict) -> FitResult:
     return replace(result, groups=groups)
 
 
+def with_rows_left_out(result: FitResult, rows: int) -> FitResult:
+    """``result`` of a fit in groups (or under weights) of ``rows`` rows with those its groups do not hold counted
+    as read and left out for having no value in the group column (rows of weight 0 among them, said in a note), so
+    that the data summary and the methods paragraph give their number and reason.  Used by fit and by every step
+    of an invariance ladder."""
+    if result.data.rows_read == rows:
+        return result
+    return replace(result, data=replace(result.data, rows_read=rows,
+                                        rows_dropped=result.data.rows_dropped + rows - result.data.rows_read,
+                                        without_group=rows - result.data.rows_read))
+
+
 def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
              design: DesignColumns | None = None) -> FitResult:
     """The fit of rows of raw data (after reading, filters and model checks), its data summary naming the
     row filters and the rows the file held before them."""
     result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
-    # rows without a group label, and rows of weight 0 (said in a note), count as read
-    if (group is not None or design is not None) and result.data.rows_read != len(loaded.frame):
-        result = replace(result, data=replace(result.data, rows_read=len(loaded.frame),
-                                              rows_dropped=result.data.rows_dropped
-                                              + len(loaded.frame) - result.data.rows_read,
-                                              without_group=len(loaded.frame) - result.data.rows_read))
+    if group is not None or design is not None:
+        result = with_rows_left_out(result, len(loaded.frame))
     if not loaded.row_filters:
         return result
     return replace(result, data=replace(result.data, row_filters=loaded.row_filters,

@@ -20,7 +20,7 @@ import pandas as pd
 from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_category_notes,
                                       make_options, moments_for, odd_value_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
-                                      with_missing_reading)
+                                      with_missing_reading, with_rows_left_out)
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
@@ -302,8 +302,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                                                           if _exempts_a_class_of(r, classes)))
             with threads:
                 est = ladder.estimate(level_spec, groups, fit_options, start)
-                result = with_missing_reading(ladder.assess(level_spec, groups, est, fit_options, group), loaded,
-                                              missing_codes)
+                result = with_rows_left_out(with_missing_reading(ladder.assess(level_spec, groups, est, fit_options,
+                                                                              group), loaded, missing_codes),
+                                            len(loaded.frame))  # rows without a group value: read and left out
             if not result.converged:
                 why = next((p for p in result.problems if p.kind is not ProblemKind.SMALL_GROUP), None)
                 reason = (f" ({result.message}). {why.advice}" if why is not None else f" ({result.message})")
