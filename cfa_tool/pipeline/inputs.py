@@ -175,7 +175,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     frame = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)  # said where used (labels.label_notes)
     items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
     return spec, replace(loaded, frame=frame, cautions=cautions + beyond, read_frame=loaded.frame if keep else None,
-                         row_filters=tuple(f.text for f in filters), items=items,
+                         row_filters=tuple(filters), items=items,
                          odd_values=odd_values(frame, spec.observed_names, row_numbers(frame), items.values)), notes
 
 

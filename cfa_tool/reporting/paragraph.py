@@ -343,7 +343,8 @@ def _sample_phrase(result) -> str:
     data = result.data
     text = f"N = {result.n_obs}"
     if data.row_filters:
-        text += f" of the {data.rows_in_file} rows in the data file, those where {_filters_in_words(data.row_filters)}"
+        text += (f" of the {data.rows_in_file} rows in the data file, those where "
+                 f"{_list([f.in_words() for f in data.row_filters])}")
     full_information = result.method.full_information
     low = _lowest_coverage(result) if full_information else None
     if low is not None:
@@ -367,21 +368,6 @@ def _sample_phrase(result) -> str:
     if without_group:
         text += _without_group_clause(without_group, data.rows_read, result.group_column)
     return text
-
-
-def _filters_in_words(filters) -> str:
-    """The row filters (--keep) as a methods section words them, joined by 'and'; a filter the filter reader cannot
-    read (none should reach here) keeps its own text."""
-    from cfa_tool.data.filters import parse_filter
-    from cfa_tool.errors import OptionError
-
-    words = []
-    for text in filters:
-        try:
-            words.append(parse_filter(str(text)).in_words())
-        except OptionError:
-            words.append(repr(str(text)))
-    return _list(words)
 
 
 def _without_group_clause(count: int, read: int, column: str | None) -> str:
