@@ -345,13 +345,15 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
 def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     """``result`` (a fit of rows) with what was read as no answer kept in its data: the ``missing_codes`` given
     (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
-    no answer (``loaded.non_answers``), which the methods paragraph names."""
+    no answer (``loaded.non_answers``), which the methods paragraph names; and the values of its items that look like
+    no answers but were analysed as answers (``loaded.odd_values``), which it names too."""
     codes = missing_codes_option(missing_codes)
     items = set(result.observed)
     marked = tuple(f for f in loaded.non_answers if f.column in items)
-    if not codes and not marked:
+    odd = tuple(o for o in loaded.odd_values if items.intersection(o.columns))
+    if not codes and not marked and not odd:
         return result
-    return replace(result, data=replace(result.data, missing_codes=codes, non_answers=marked))
+    return replace(result, data=replace(result.data, missing_codes=codes, non_answers=marked, odd_values=odd))
 
 
 def _id_can_apply(spec: Spec, ordinal, fit_options: FitOptions) -> None:

@@ -217,6 +217,9 @@ class DataSummary:
     # the model's coding of answers recorded as words (data.answer_words.coding_record), which scoring other data with
     # this fit reads so too
     answer_coding: tuple = ()
+    # values of the model's items that look like no answers (data.odd_values.OddValues: a missing-value code, a totals
+    # or means row) but were analysed as answers, as the file holds them: the methods paragraph says so
+    odd_values: tuple = ()
 
     @property
     def pair_range(self) -> tuple[int, int] | None:

@@ -326,6 +326,18 @@ def _read_as_missing(data) -> str:
     return "; ".join(clauses)
 
 
+def _kept_as_answers(data) -> str:
+    """The values of the items that look like no answers (a missing-value code, a totals or means row:
+    data.odd_values) but were analysed as answers, as the file holds them, in a clause of the rows' phrase ('' when
+    there are none)."""
+    found = [o.kept_words() for o in getattr(data, "odd_values", ())]
+    if not found:
+        return ""
+    one = len(found) == 1
+    return (f"{'; '.join(found)}; {'this was' if one else 'these were'} analysed as answers, as the file holds "
+            f"{'it' if one else 'them'}")
+
+
 def _lowest_coverage(result) -> float | None:
     """The smallest share of the rows that answered an item: from the fit's missing-data summary, or, for a fit
     without one (the steps of an invariance ladder), from the rows answering each item in each group (None when
@@ -358,6 +370,9 @@ def _sample_phrase(result) -> str:
     read = _read_as_missing(data)
     if read:
         text += f"; {read}"
+    kept = _kept_as_answers(data)
+    if kept:
+        text += f"; {kept}"
     without_group = getattr(data, "without_group", 0)
     dropped = data.rows_dropped - without_group
     if dropped:
@@ -718,7 +733,9 @@ def _comparison_rows(comparison) -> str:
     if without:
         left += _without_group_clause(without, read_rows, comparison.results[0].group_column)
     read = _read_as_missing(comparison.results[0].data)
-    return f"N = {n}" + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
+    kept = _kept_as_answers(comparison.results[0].data)
+    return (f"N = {n}" + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
+            + (f"; {kept}" if kept else ""))
 
 
 def comparison_paragraph(comparison) -> str:
