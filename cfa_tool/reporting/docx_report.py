@@ -18,7 +18,7 @@ from docx.shared import Emu, Inches, Pt, RGBColor
 
 from cfa_tool.errors import printable
 from cfa_tool.reporting.column_parts import column_parts, label_columns
-from cfa_tool.reporting.picture import DEFAULT_DPI, page_fit, png_converter, svg_to_png
+from cfa_tool.reporting.picture import DEFAULT_DPI, page_fit, png_converter, printed_width, smallest_text, svg_to_png
 from cfa_tool.reporting.document import WARNINGS
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.tables import ReportTable
@@ -111,6 +111,33 @@ def _room(document) -> float:
     """The text width of the current section in points."""
     section = document.sections[-1]
     return Emu(section.page_width - section.left_margin - section.right_margin).pt
+
+
+FIGURE_ROOM = 1.0  # inches of a page's text height kept for a figure's caption and note
+LANDSCAPE_GAIN = 1.1  # a figure goes on a landscape page when it prints at least this much larger there
+# the smallest lettering of a figure in print, in points: journals' artwork guides ask for about 6 to 8 pt (common
+# practice); a figure whose labels would print smaller across a portrait page goes on a landscape page
+MIN_FIGURE_TEXT = 7.0
+
+
+def _on_landscape(document, svg: str, png: bytes) -> bool:
+    """Whether a figure goes on a landscape page: its smallest text would print below ``MIN_FIGURE_TEXT`` across a
+    portrait page and prints at least ``LANDSCAPE_GAIN`` times larger across a landscape one (a wide drawing of
+    many items); the drawing is the same either way."""
+    portrait, landscape = (printed_width(png, *area) for area in _figure_areas(document))
+    smallest = smallest_text(svg, portrait)
+    return smallest is not None and smallest < MIN_FIGURE_TEXT and landscape > LANDSCAPE_GAIN * portrait
+
+
+def _figure_areas(document) -> tuple[tuple[float, float], tuple[float, float]]:
+    """The room for a figure, width by height in inches, on a portrait and on a landscape page of ``document``'s
+    paper and margins (the text area less ``FIGURE_ROOM``): a drawing set to the narrower width of a portrait page
+    shrinks its labels with it, so a wide drawing (a model of many items) prints larger across a landscape page."""
+    section = document.sections[-1]
+    long_side, short_side = max(section.page_width, section.page_height), min(section.page_width, section.page_height)
+    across, down = section.left_margin + section.right_margin, section.top_margin + section.bottom_margin
+    return ((Emu(short_side - across).inches, Emu(long_side - down).inches - FIGURE_ROOM),
+            (Emu(long_side - across).inches, Emu(short_side - down).inches - FIGURE_ROOM))
 
 
 def _set_orientation(document, landscape: bool) -> None:
@@ -293,12 +320,16 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
             document.add_paragraph(NO_PICTURE)
         else:
             for number, figure in enumerate(report.figures, start=1):
-                _caption(document, f"Figure {number}", figure.title)
                 png = svg_to_png(figure.svg, dpi)
-                side, inches = page_fit(png)
+                wider = _on_landscape(document, figure.svg, png)
+                portrait, landscape = _figure_areas(document)
+                _set_orientation(document, wider)  # a wide drawing (many items) on a landscape page: larger labels
+                _caption(document, f"Figure {number}", figure.title)
+                side, inches = page_fit(png, *(landscape if wider else portrait))
                 document.add_picture(io.BytesIO(png), **{side: Inches(inches)})
                 if figure.note:
                     _note(document, figure.note)
+            _set_orientation(document, landscape=False)
     section = ""
     for number, table in enumerate(report.tables, start=1):
         if table.section and table.section != section:

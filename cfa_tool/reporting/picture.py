@@ -3,6 +3,7 @@ chosen resolution or to PDF, both on a white background."""
 
 from __future__ import annotations
 
+import re
 import shutil
 import subprocess
 import tempfile
@@ -75,13 +76,39 @@ def _convert(svg: str, kind: PictureFormat, dpi: int) -> bytes:
         return out.read_bytes()
 
 
+def png_size(png: bytes) -> tuple[int, int]:
+    """The width and height of a PNG picture in pixels, read from its IHDR chunk (PNG specification, section
+    11.2.2)."""
+    return int.from_bytes(png[16:20], "big"), int.from_bytes(png[20:24], "big")
+
+
 def page_fit(png: bytes, width: float = 6.5, height: float = 8.0) -> tuple[str, float]:
     """Which side of a PNG picture to set, and to how many inches, so that it fills the width of a page's text
     area without running off its foot: ``width`` by ``height`` inches, the text area of a letter page with margins
-    of one inch less room for the figure's caption and note.  Width and height are read from the
-    IHDR chunk (PNG specification, section 11.2.2)."""
-    pixels_wide = int.from_bytes(png[16:20], "big")
-    pixels_high = int.from_bytes(png[20:24], "big")
+    of one inch less room for the figure's caption and note."""
+    pixels_wide, pixels_high = png_size(png)
     if pixels_high * width > pixels_wide * height:
         return "height", height
     return "width", width
+
+
+_FONT_SIZE = re.compile(r'font-size="([0-9.]+)"')
+_SVG_WIDTH = re.compile(r'<svg[^>]*?\swidth="([0-9.]+)"')
+
+
+def smallest_text(svg: str, inches: float) -> float | None:
+    """The size in points of the smallest text of the SVG drawing ``svg`` (this tool's: sizes in font-size
+    attributes, its width in user units on the root element) printed ``inches`` wide; None without text."""
+    sizes = [float(s) for s in _FONT_SIZE.findall(svg)]
+    width = _SVG_WIDTH.search(svg)
+    if not sizes or width is None or not float(width.group(1)):
+        return None
+    return min(sizes) * inches * 72.0 / float(width.group(1))
+
+
+def printed_width(png: bytes, width: float, height: float) -> float:
+    """The width in inches a PNG picture prints at when set by :func:`page_fit` in a text area of ``width`` by
+    ``height`` inches: the scale of every line and label of the drawing."""
+    side, inches = page_fit(png, width, height)
+    pixels_wide, pixels_high = png_size(png)
+    return inches if side == "width" else inches * pixels_wide / pixels_high
