@@ -600,6 +600,10 @@ def methods_paragraph(result) -> str:
         if d.invariant:
             parts.append(f"Held equal across groups: {_list(equality_words(d.invariant))}" + (
                 f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + ".")
+        elif result.multigroup:  # a reviewer must not take the groups' estimates for invariant ones
+            parts.append("No invariance constraints were imposed: the parameters were estimated separately in each "
+                         "group, with the same pattern in every group" + (
+                             " (apart from the equality constraints above)" if d.equal else "") + ".")
         parts += [sentence for sentence in (_factor_means_sentence(result), _latent_response_sentence(result))
                   if sentence]
     else:

@@ -88,3 +88,15 @@ def test_the_invariance_paragraph_says_rows_with_gaps_were_used_as_the_fit_does(
     phrase = ("every answer of every row was used, including rows with missing answers (each item answered in at "
               "least 98.3% of the rows)")
     assert phrase in _flat(methods_paragraph(fitted)) and phrase in _flat(invariance_paragraph(ladder, LEVELS))
+
+
+def test_a_fit_in_groups_without_equalities_says_none_were_imposed(hs_data):
+    # a reviewer reading only the paragraph must not take the groups' loadings for invariant ones
+    result = cfa_tool.fit(THREE_FACTORS, hs_data, group="school")
+    assert not result.description.invariant
+    text = " ".join(methods_paragraph(result).split())
+    assert ("No invariance constraints were imposed: the parameters were estimated separately in each group, with "
+            "the same pattern in every group.") in text
+    held = " ".join(methods_paragraph(cfa_tool.fit(THREE_FACTORS + "invariance metric\n", hs_data,
+                                                   group="school")).split())
+    assert "No invariance constraints" not in held and "Held equal across groups: loadings" in held
