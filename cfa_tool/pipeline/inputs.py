@@ -346,7 +346,9 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     """``result`` (a fit of rows) with what was read as no answer kept in its data: the ``missing_codes`` given
     (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
     no answer (``loaded.non_answers``), which the methods paragraph names; and the values of its items that look like
-    no answers but were analysed as answers (``loaded.odd_values``), which it names too."""
+    no answers but were analysed as answers (``loaded.odd_values``), and the row filters that chose its rows
+    (:func:`with_row_filters`), which it names too."""
+    result = with_row_filters(result, loaded)
     codes = missing_codes_option(missing_codes)
     items = set(result.observed)
     marked = tuple(f for f in loaded.non_answers if f.column in items)
@@ -567,6 +569,12 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
     result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
     if group is not None or design is not None:
         result = with_rows_left_out(result, len(loaded.frame))
+    return with_row_filters(result, loaded)
+
+
+def with_row_filters(result, loaded: LoadedData):
+    """``result`` (a fit of rows) with the row filters that chose its rows and the rows the file held before them
+    in its data summary, which the reports and the methods paragraph name (unchanged without filters)."""
     if not loaded.row_filters:
         return result
     return replace(result, data=replace(result.data, row_filters=loaded.row_filters,

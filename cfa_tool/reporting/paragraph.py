@@ -353,10 +353,7 @@ def _lowest_coverage(result) -> float | None:
 
 def _sample_phrase(result) -> str:
     data = result.data
-    text = f"N = {result.n_obs}"
-    if data.row_filters:
-        text += (f" of the {data.rows_in_file} rows in the data file, those where "
-                 f"{_list([f.in_words() for f in data.row_filters])}")
+    text = f"N = {result.n_obs}" + _filtered(data)
     full_information = result.method.full_information
     low = _lowest_coverage(result) if full_information else None
     if low is not None:
@@ -383,6 +380,15 @@ def _sample_phrase(result) -> str:
     if without_group:
         text += _without_group_clause(without_group, data.rows_read, result.group_column)
     return text
+
+
+def _filtered(data) -> str:
+    """' of the 301 rows in the data file, those where school was Pasteur': the rows the row filters (--keep) chose,
+    each filter worded by RowFilter.in_words ('' without filters)."""
+    if not data.row_filters:
+        return ""
+    return (f" of the {data.rows_in_file} rows in the data file, those where "
+            f"{_list([f.in_words() for f in data.row_filters])}")
 
 
 def _without_group_clause(count: int, read: int, column: str | None) -> str:
@@ -736,9 +742,10 @@ def _comparison_rows(comparison) -> str:
             if dropped and comparison.missing is not MissingData.LISTWISE else "")
     if without:
         left += _without_group_clause(without, read_rows, comparison.results[0].group_column)
-    read = _read_as_missing(comparison.results[0].data)
-    kept = _kept_as_answers(comparison.results[0].data)
-    return (f"N = {n}" + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
+    data = comparison.results[0].data
+    read = _read_as_missing(data)
+    kept = _kept_as_answers(data)
+    return (f"N = {n}" + _filtered(data) + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
             + (f"; {kept}" if kept else ""))
 
 

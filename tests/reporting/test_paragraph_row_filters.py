@@ -27,3 +27,17 @@ def test_the_paragraph_words_the_parsed_filters(monkeypatch):
     text = " ".join(methods_paragraph(result).split())
     assert (f'N = {kept} of the {len(data)} rows in the data file, those where "age in years" was at least 13 and '
             f"school was Pasteur") in text
+
+
+def test_compare_and_invariance_name_the_filters_too():
+    # a comparison or a ladder of a part of the file said only 'N = 192', as if it were the whole file
+    from cfa_tool.reporting.paragraph import comparison_paragraph, invariance_paragraph
+    from cfa_tool.workflows.invariance import LEVELS
+
+    data = holzinger_swineford()
+    kept = int((data["ageyr"] >= 13).sum())  # counted by pandas
+    clause = f"N = {kept} of the {len(data)} rows in the data file, those where ageyr was at least 13"
+    compared = cfa_tool.compare([THREE_FACTORS, THREE_FACTORS + "covary x7, x8\n"], data, keep=("ageyr >= 13",))
+    assert compared.n_obs == kept and clause in " ".join(comparison_paragraph(compared).split())
+    ladder = cfa_tool.invariance(THREE_FACTORS, data, "school", keep=("ageyr >= 13",))
+    assert clause in " ".join(invariance_paragraph(ladder, LEVELS).split())
