@@ -151,6 +151,7 @@ class _Layout:
     table_top: float = MARGIN  # where the lists of values not drawn begin
     continued: list[tuple[str, tuple[str, ...]]] = field(default_factory=list)  # (factor, its items in a later band)
     shown: dict[str, str] = field(default_factory=dict)  # the short label drawn for an item (see item_labels)
+    breaks: list[float] = field(default_factory=list)  # the middle of each gap between bands, where nothing is drawn
 
     def text(self, name: str) -> str:
         """What the drawing shows for a factor or item."""
@@ -292,6 +293,7 @@ def _layout(result, rows, obs_set) -> _Layout:
         drops = [_drop(depth) for pair, depth in lay.drop_level.items() if lay.band_of[pair[0]] == b]
         y += max(drops, default=0.0) + (20 if drops else 0)
         if b < len(bands) - 1:
+            lay.breaks.append(y + BAND_GAP / 2)
             y += BAND_GAP
     if lay.bottom:
         y += ROW_GAP - 20
@@ -416,12 +418,12 @@ def _document(result, groups: list[int], legend: bool) -> str:
     key = [(short, name) for name, short in item_labels(result).items()]
     indent = TEXT_EM * LIST_SIZE * (max((len(short) for short, _ in key), default=0) + 1)  # from a label to its name
     key_column = indent + TEXT_EM * LIST_SIZE * max((len(name) for _, name in key), default=0) + 30  # with a gap
-    width = max([w for w, _, _ in drawings] + [2 * MARGIN + TEXT_EM * 11 * len(line) for line in lines]
+    width = max([w for w, _, _, _ in drawings] + [2 * MARGIN + TEXT_EM * 11 * len(line) for line in lines]
                 + ([2 * MARGIN + key_column] if key else []))
     key_columns = max(1, int((width - 2 * MARGIN) // key_column)) if key else 1
     key_rows = math.ceil(len(key) / key_columns)
     key_height = 18 + 16 * key_rows + 10 if key else 0
-    height = sum(h for _, h, _ in drawings) + key_height + (10 + 18 * len(lines) if lines else 0)
+    height = sum(h for _, h, _, _ in drawings) + key_height + (10 + 18 * len(lines) if lines else 0)
     labels = [result.groups[g].label for g in groups]
     title = esc(result.model_name) + ("" if labels == [None] else " — group " + ", ".join(esc(str(x)) for x in labels))
     parts = [
@@ -435,11 +437,15 @@ def _document(result, groups: list[int], legend: bool) -> str:
     if legend:
         parts.append(f'<rect width="{width:.0f}" height="{height:.0f}" fill="#ffffff"/>')
     y = 0.0
-    for _, h, body in drawings:
+    breaks = []  # where the drawing can be cut into strips that cut nothing: between bands and between groups
+    for k, (_, h, body, between) in enumerate(drawings):
         parts.append(f'<g transform="translate(0,{y:.0f})">')
         parts.extend(body)
         parts.append("</g>")
+        breaks += [round(y) + b for b in between] + ([round(y + h)] if k < len(drawings) - 1 else [])
         y += h
+    if breaks:
+        parts[0] = parts[0].replace(' role="img">', f' role="img" data-breaks="{" ".join(f"{b:.0f}" for b in breaks)}">')
     if key:  # the items' names, under the drawing of every group
         parts.append(f'<text class="key-title" x="{MARGIN:.1f}" y="{y + 14:.1f}" font-size="{LIST_SIZE}" '
                      f'font-weight="bold">{KEY_TITLE}</text>')
@@ -457,8 +463,9 @@ def _document(result, groups: list[int], legend: bool) -> str:
     return "\n".join(parts) + "\n"
 
 
-def _draw(result, group: int) -> tuple[float, float, list[str]]:
-    """(width, height, SVG elements) of one group's drawing."""
+def _draw(result, group: int) -> tuple[float, float, list[str], list[float]]:
+    """(width, height, SVG elements, the heights between its bands where nothing is drawn) of one group's
+    drawing."""
     label = result.groups[group].label
     rows = [r for r in result.estimates if r.group == label] + _block_rows(result)
     problems = getattr(result, "problems", ())
@@ -592,7 +599,7 @@ def _draw(result, group: int) -> tuple[float, float, list[str]]:
             else:
                 parts.append(_label(cx + RESIDUAL_R + 3, cy + 4, text, size=10, anchor="start", problem=bad))
     parts.append("</g>")
-    return lay.width, lay.height + head, parts
+    return lay.width, lay.height + head, parts, [head + b for b in lay.breaks]
 
 
 def _free_spot(spots: list[tuple[float, float]], text: str, placed: list, size: int = 11) -> tuple[float, float]:

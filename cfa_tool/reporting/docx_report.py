@@ -18,7 +18,8 @@ from docx.shared import Emu, Inches, Pt, RGBColor
 
 from cfa_tool.errors import printable
 from cfa_tool.reporting.column_parts import column_parts, label_columns
-from cfa_tool.reporting.picture import DEFAULT_DPI, page_fit, png_converter, printed_width, smallest_text, svg_to_png
+from cfa_tool.reporting.picture import (DEFAULT_DPI, page_fit, png_converter, smallest_text, svg_size, svg_strips,
+                                       svg_to_png)
 from cfa_tool.reporting.document import WARNINGS
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.tables import ReportTable
@@ -120,13 +121,27 @@ LANDSCAPE_GAIN = 1.1  # a figure goes on a landscape page when it prints at leas
 MIN_FIGURE_TEXT = 7.0
 
 
-def _on_landscape(document, svg: str, png: bytes) -> bool:
-    """Whether a figure goes on a landscape page: its smallest text would print below ``MIN_FIGURE_TEXT`` across a
-    portrait page and prints at least ``LANDSCAPE_GAIN`` times larger across a landscape one (a wide drawing of
-    many items); the drawing is the same either way."""
-    portrait, landscape = (printed_width(png, *area) for area in _figure_areas(document))
-    smallest = smallest_text(svg, portrait)
-    return smallest is not None and smallest < MIN_FIGURE_TEXT and landscape > LANDSCAPE_GAIN * portrait
+def _figure_pieces(document, svg: str) -> tuple[bool, list[str]]:
+    """How a figure is set: (on a landscape page, its drawing whole or in strips).  The first of: whole on a
+    portrait page, whole on a landscape page, in strips on portrait pages, in strips on landscape pages, whose
+    smallest text prints at least ``MIN_FIGURE_TEXT``; the strips are cut between the bands of a diagram of many
+    items (picture.svg_strips), one under the other on following pages.  When none reaches that size, the one that
+    prints largest, if at least ``LANDSCAPE_GAIN`` times larger than whole on the portrait page.  The drawing is the
+    same in every case."""
+    width, height = svg_size(svg)
+    areas = _figure_areas(document)
+    choices = []  # (inches per unit of the drawing, landscape, pieces), in the order of preference
+    for pieces_of in (lambda w, h: [svg], lambda w, h: svg_strips(svg, h * width / w)):
+        for landscape in (False, True):
+            w, h = areas[landscape]
+            pieces = pieces_of(w, h)
+            choices.append((min(w / width, h / max(svg_size(piece)[1] for piece in pieces)), landscape, pieces))
+    for scale, landscape, pieces in choices:
+        smallest = smallest_text(svg, scale * width)
+        if smallest is None or smallest >= MIN_FIGURE_TEXT:
+            return landscape, pieces
+    scale, landscape, pieces = max(choices, key=lambda c: c[0])
+    return (landscape, pieces) if scale > LANDSCAPE_GAIN * choices[0][0] else (False, [svg])
 
 
 def _figure_areas(document) -> tuple[tuple[float, float], tuple[float, float]]:
@@ -320,13 +335,14 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
             document.add_paragraph(NO_PICTURE)
         else:
             for number, figure in enumerate(report.figures, start=1):
-                png = svg_to_png(figure.svg, dpi)
-                wider = _on_landscape(document, figure.svg, png)
-                portrait, landscape = _figure_areas(document)
+                wider, pieces = _figure_pieces(document, figure.svg)
+                area = _figure_areas(document)[wider]
                 _set_orientation(document, wider)  # a wide drawing (many items) on a landscape page: larger labels
-                _caption(document, f"Figure {number}", figure.title)
-                side, inches = page_fit(png, *(landscape if wider else portrait))
-                document.add_picture(io.BytesIO(png), **{side: Inches(inches)})
+                for k, piece in enumerate(pieces):
+                    _caption(document, f"Figure {number}" + (" (continued)" if k else ""), figure.title)
+                    png = svg_to_png(piece, dpi)
+                    side, inches = page_fit(png, *area)
+                    document.add_picture(io.BytesIO(png), **{side: Inches(inches)})
                 if figure.note:
                     _note(document, figure.note)
             _set_orientation(document, landscape=False)

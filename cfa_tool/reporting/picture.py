@@ -106,9 +106,35 @@ def smallest_text(svg: str, inches: float) -> float | None:
     return min(sizes) * inches * 72.0 / float(width.group(1))
 
 
-def printed_width(png: bytes, width: float, height: float) -> float:
-    """The width in inches a PNG picture prints at when set by :func:`page_fit` in a text area of ``width`` by
-    ``height`` inches: the scale of every line and label of the drawing."""
-    side, inches = page_fit(png, width, height)
-    pixels_wide, pixels_high = png_size(png)
-    return inches if side == "width" else inches * pixels_wide / pixels_high
+_SVG_HEIGHT = re.compile(r'<svg[^>]*?\sheight="([0-9.]+)"')
+_BREAKS = re.compile(r'<svg[^>]*?\sdata-breaks="([0-9. ]+)"')
+
+
+def svg_size(svg: str) -> tuple[float, float]:
+    """The width and height of an SVG drawing of this tool, in user units, from its root element."""
+    return float(_SVG_WIDTH.search(svg).group(1)), float(_SVG_HEIGHT.search(svg).group(1))
+
+
+def svg_strips(svg: str, most: float) -> list[str]:
+    """The SVG drawing ``svg`` cut across into strips at most ``most`` user units high, each as an SVG drawing of
+    its own: cut only where the drawing says nothing is drawn (its root's ``data-breaks``: between the bands of a
+    diagram of many items, and between groups), as few strips as that allows; a part between two cuts that is
+    higher than ``most`` is a strip of its own.  ``[svg]`` when it is not cut."""
+    found, width, height = _BREAKS.search(svg), _SVG_WIDTH.search(svg), _SVG_HEIGHT.search(svg)
+    if found is None or width is None or height is None or float(height.group(1)) <= most:
+        return [svg]
+    w, h = float(width.group(1)), float(height.group(1))
+    cuts = [0.0]
+    candidates = sorted(float(b) for b in found.group(1).split()) + [h]
+    for k, at in enumerate(candidates[:-1]):
+        if candidates[k + 1] - cuts[-1] > most:
+            cuts.append(at)
+    cuts.append(h)
+    head = svg[:svg.index(">", svg.index("<svg")) + 1]
+    strips = []
+    for top, bottom in zip(cuts, cuts[1:]):
+        root = re.sub(r'viewBox="[^"]*"', f'viewBox="0 {top:.0f} {w:.0f} {bottom - top:.0f}"', head, count=1)
+        found = _SVG_HEIGHT.search(root)
+        root = root[:found.start(1)] + f"{bottom - top:.0f}" + root[found.end(1):]
+        strips.append(root + svg[len(head):])
+    return strips

@@ -59,3 +59,36 @@ def test_a_small_diagram_stays_on_the_portrait_page():
     report = fit_report(cfa_tool.fit(THREE_FACTORS, holzinger_swineford()))  # nine items
     orientation, inches = _figure(report)
     assert orientation == WD_ORIENT.PORTRAIT and _smallest_points(report.figures[0].svg, inches) >= MIN_FIGURE_TEXT
+
+
+def test_a_diagram_of_thirty_items_goes_on_in_strips(tmp_path):
+    # thirty items in five factors of six (simulated with a fixed seed): drawn in three bands of factors, too small
+    # to read across one page (about 4.5 pt), so the Word figure is cut between the bands, one strip a page
+    import numpy as np
+    import pandas as pd
+
+    from cfa_tool.reporting.picture import svg_strips
+
+    rng = np.random.default_rng(7)
+    scores = rng.multivariate_normal(np.zeros(5), 0.4 * np.ones((5, 5)) + 0.6 * np.eye(5), size=600)
+    data = pd.DataFrame({f"item{j + 1:02d}": 0.7 * scores[:, j // 6] + 0.6 * rng.standard_normal(600) + 3
+                         for j in range(30)})
+    model = "".join(f"factor f{f + 1}: " + ", ".join(f"item{j + 1:02d}" for j in range(6 * f, 6 * f + 6)) + "\n"
+                    for f in range(5))
+    report = fit_report(cfa_tool.fit(model, data))
+    svg = report.figures[0].svg
+    width, height = (float(re.search(rf'<svg[^>]*?\s{a}="([0-9.]+)"', svg).group(1)) for a in ("width", "height"))
+    breaks = [float(b) for b in re.search(r'data-breaks="([0-9. ]+)"', svg).group(1).split()]
+    assert len(breaks) == 2  # three bands
+    assert _smallest_points(svg, min(6.0, 8.0 * width / height)) < MIN_FIGURE_TEXT  # whole, on the portrait page
+    document = docx.Document(io.BytesIO(report_docx(report, dpi=96)))
+    pictures = document.inline_shapes
+    assert len(pictures) == 2
+    captions = [p.text for p in document.paragraphs if p.text.startswith("Figure ")]
+    assert captions == ["Figure 1", "Figure 1 (continued)"]
+    strips = svg_strips(svg, 5.5 * width / 8.5)  # landscape: 8.5 by 5.5 inches for the drawing
+    tops = [float(re.search(r'viewBox="0 ([0-9.]+) ', s).group(1)) for s in strips]
+    assert len(strips) == 2 and tops[0] == 0 and tops[1] in breaks  # cut where nothing is drawn
+    for picture in pictures:  # each strip across the landscape page, its labels larger than the whole drawing's
+        assert abs(Emu(picture.width).inches - 8.5) < 0.01 or Emu(picture.height).inches <= 5.5 + 0.01
+        assert _smallest_points(svg, Emu(picture.width).inches) > 1.1 * _smallest_points(svg, 6.0)
