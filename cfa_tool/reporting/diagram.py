@@ -25,7 +25,9 @@ factors) are then drawn in a row of their own above the bands, and their
 loadings (and a cross-loading that would join two bands) are listed with the
 correlations.
 Arcs between factors leave each ellipse at their own point of its top, so they
-do not all meet at one point.
+do not all meet at one point.  The root element names the heights between bands
+(and between groups), where nothing is drawn, in ``data-breaks``: the Word report
+cuts a drawing too large for one page there (reporting.picture.svg_strips).
 """
 
 from __future__ import annotations

@@ -1,6 +1,7 @@
 """The report as a Word document (python-docx), laid out for a manuscript in the style of the APA
 Publication Manual, 7th edition: numbered tables with an italic title, horizontal rules only, notes under
-the table; the methods paragraph; the path diagram as a numbered figure; the cautions.  The problems of
+the table; the methods paragraph; the path diagram as a numbered figure (on a landscape page, or in strips cut
+between its bands, when its labels would print below 7 pt across a portrait page); the cautions.  The problems of
 the solution come first, as in every view.  The tables are the report's own (one report model)."""
 
 from __future__ import annotations
