@@ -19,7 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.errors import OptionError, printable
-from cfa_tool.language.names import reference_text
+from cfa_tool.language.names import reference_text, written_name
 from cfa_tool.model.description import label_words, split_label
 from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
@@ -194,9 +194,12 @@ class Problem:
         """The problem as the views list it: the explanation, then what to try."""
         return f"{self.explanation} What to try: {self.advice}"
 
-    def phrase(self) -> str:
-        """The problem in the words of a methods paragraph, e.g. 'a negative residual variance of x9 (-1.02)'."""
-        names = _names(self.parameters[0]) if self.parameters else ()
+    def phrase(self, quoted: bool = False) -> str:
+        """The problem in the words of a methods paragraph, e.g. 'a negative residual variance of x9 (-1.02)';
+        ``quoted`` writes its names and group in double quotes unless plain (language.names.written_name), for the
+        paragraph's lists, in which a name's commas would run into the list's."""
+        written = written_name if quoted else str
+        names = tuple(written(n) for n in _names(self.parameters[0])) if self.parameters else ()
         v = f"{self.value:.2f}" if self.value is not None and np.isfinite(self.value) else ""
         K = ProblemKind
         text = {
@@ -208,7 +211,7 @@ class Problem:
             K.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE: "a factor covariance matrix that is not positive definite",
             K.RESIDUAL_COVARIANCES_NOT_POSITIVE_DEFINITE: "a residual covariance matrix that is not positive definite",
             K.STANDARDIZED_LOADING_ABOVE_ONE: f"a standardized loading of {names[-1] if names else ''} above 1 ({v})",
-            K.ON_BOUND: f"{', '.join(self.parameter_words())} held at a bound",
+            K.ON_BOUND: f"{', '.join(label_words(label, quoted=quoted) for label in self.parameters)} held at a bound",
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
             K.SMALL_EFFECTIVE_SAMPLE: f"an effective sample size of only {v} under the weights",
@@ -231,7 +234,7 @@ class Problem:
             K.FACTOR_POINTS_AGAINST_ITEMS: f"factor {', '.join(names)} pointing against its items (a higher score "
                                            f"means less of what most of them ask)",
         }[self.kind]
-        return text + (f" in group {self.group}" if self.group is not None else "")
+        return text + (f" in group {written(self.group)}" if self.group is not None else "")
 
     def touches(self, kind: str, variables: tuple[str, ...], group: str | None = None) -> bool:
         """Whether the parameter ``kind(variables)`` (of ``group``) is one of this problem's.  Covariances

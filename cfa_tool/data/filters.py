@@ -19,6 +19,7 @@ from cfa_tool.data.kept_rows import KEPT_BY
 from cfa_tool.data.labels import label_text
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.language.names import written_name
 from cfa_tool.numbers import number
 from cfa_tool.suggest import close_names
 
@@ -36,9 +37,10 @@ class RowFilter:
         return self.text
 
     def in_words(self) -> str:
-        """The filter as a methods section words it: 'district was north', 'age was at least 18'."""
+        """The filter as a methods section words it: 'district was north', 'age was at least 18', '"wave 2" was
+        1' (the column as the model language writes names: language.names.written_name)."""
         value = f"{self.value:g}" if isinstance(self.value, float) else str(self.value)
-        return f"{self.column} {_OPERATOR_WORDS[self.operator]} {value}"
+        return f"{written_name(self.column)} {_OPERATOR_WORDS[self.operator]} {value}"
 
 
 #: each operator of a row filter in the words of a methods section

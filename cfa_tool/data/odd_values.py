@@ -32,6 +32,7 @@ from cfa_tool.data.descriptives import answer_extremes
 from cfa_tool.data.moments import item_values
 from cfa_tool.errors import printable
 from cfa_tool.input_files import base_name
+from cfa_tool.language.names import written_name
 
 MIN_OTHERS = 10  # answers a judgement needs besides the value judged
 FAR_RANGES = 2.0  # a row with values further beyond the others than this many times their range in half its columns
@@ -85,6 +86,24 @@ class OddValues:
                  else "a totals or means row of a spreadsheet?")
         return (f"Data row {self.rows[0]} of {name} holds {what} in {len(self.columns)} item "
                 f"column{'s' if len(self.columns) != 1 else ''} ({shown}{more}): {guess}")
+
+    def kept_words(self) -> str:
+        """The finding in the words of a methods section, for a run that analysed the values as the file holds them:
+        'the value -99 in x2 and x5 (7 answers), far outside the other answers (1 to 5): perhaps a missing-value code',
+        'data row 302, whose values equal the means of the other rows' answers in every item column it answers (9):
+        perhaps a means row'."""
+        low, high = self.others
+        if self.kind is OddKind.MISSING_CODE:
+            return (f"the value {_number(self.values[0])} in {_listed(written_name(c) for c in self.columns)} "
+                    f"({self.answers} answer{'s' if self.answers != 1 else ''}), far outside the other answers "
+                    f"({_number(low)} to {_number(high)}): perhaps a missing-value code")
+        if self.kind is OddKind.FAR_BEYOND:
+            return (f"data row {self.rows[0]}, with values far beyond every other row's answers ({_number(low)} to "
+                    f"{_number(high)}) in {len(self.columns)} item column{'s' if len(self.columns) != 1 else ''}: "
+                    f"perhaps a totals row or a typing error")
+        which = "sums" if self.kind is OddKind.SUMS_ROW else "means"
+        return (f"data row {self.rows[0]}, whose values equal the {which} of the other rows' answers in every item "
+                f"column it answers ({len(self.columns)}): perhaps a {'totals' if which == 'sums' else 'means'} row")
 
     def advice(self) -> str:
         if self.kind is OddKind.MISSING_CODE:

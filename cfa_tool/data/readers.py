@@ -46,8 +46,8 @@ class LoadedData:
     row_names: pd.Series | None = None
     #: the rows as read, before row filters (None when no filter was applied: ``frame`` holds them all)
     read_frame: pd.DataFrame | None = None
-    #: the row filters applied (as the user wrote them), in order
-    row_filters: tuple[str, ...] = ()
+    #: the row filters applied (data.filters.RowFilter, parsed once: their text as the user wrote it), in order
+    row_filters: tuple = ()
     #: values in the model's item columns that look like no answers (data.odd_values.OddValues), found on reading
     odd_values: tuple = ()
     #: the model's item columns of ``frame`` as one float array, taken out once for the screening, the missing-data

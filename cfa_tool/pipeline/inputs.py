@@ -183,7 +183,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     frame = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)  # said where used (labels.label_notes)
     items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
     return spec, replace(loaded, frame=frame, cautions=cautions + beyond, read_frame=loaded.frame if keep else None,
-                         row_filters=tuple(f.text for f in filters), items=items,
+                         row_filters=tuple(filters), items=items,
                          odd_values=odd_values(frame, spec.observed_names, row_numbers(frame), items.values)), notes
 
 
@@ -376,13 +376,17 @@ def reference_group_applies(results, reference_group: str | None) -> None:
 def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     """``result`` (a fit of rows) with what was read as no answer kept in its data: the ``missing_codes`` given
     (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
-    no answer (``loaded.non_answers``), which the methods paragraph names."""
+    no answer (``loaded.non_answers``), which the methods paragraph names; and the values of its items that look like
+    no answers but were analysed as answers (``loaded.odd_values``), and the row filters that chose its rows
+    (:func:`with_row_filters`), which it names too."""
+    result = with_row_filters(result, loaded)
     codes = missing_codes_option(missing_codes)
     items = set(result.observed)
     marked = tuple(f for f in loaded.non_answers if f.column in items)
-    if not codes and not marked:
+    odd = tuple(o for o in loaded.odd_values if items.intersection(o.columns))
+    if not codes and not marked and not odd:
         return result
-    return replace(result, data=replace(result.data, missing_codes=codes, non_answers=marked))
+    return replace(result, data=replace(result.data, missing_codes=codes, non_answers=marked, odd_values=odd))
 
 
 def _id_can_apply(spec: Spec, ordinal, fit_options: FitOptions) -> None:
@@ -700,6 +704,12 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
     result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
     if group is not None or design is not None:
         result = with_rows_read(result, loaded)
+    return with_row_filters(result, loaded)
+
+
+def with_row_filters(result, loaded: LoadedData):
+    """``result`` (a fit of rows) with the row filters that chose its rows and the rows the file held before them
+    in its data summary, which the reports and the methods paragraph name (unchanged without filters)."""
     if not loaded.row_filters:
         return result
     return replace(result, data=replace(result.data, row_filters=loaded.row_filters,

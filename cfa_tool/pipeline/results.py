@@ -19,6 +19,7 @@ from cfa_tool.views import Presentable, scorer
 
 if TYPE_CHECKING:  # the robust test's module is imported by the fits that compute one
     from cfa_tool.inference.robust import RobustFit
+    from cfa_tool.data.filters import RowFilter
 
 DEFAULT_MI_THRESHOLD = 3.84  # chi-square(1) critical value at alpha = .05
 
@@ -195,8 +196,9 @@ class DataSummary:
     categories: tuple[tuple[tuple[float, int], ...], ...] = ()
     # ordinal items with pairwise present rows: (item, item, rows answering both) for each pair
     pair_rows: tuple[tuple[str, str, int], ...] = ()
-    # row filters (--keep) as written, and the rows the file held before them (None without filters)
-    row_filters: tuple[str, ...] = ()
+    # row filters (--keep) as parsed (data.filters.RowFilter: the text as written and the words of a methods section),
+    # and the rows the file held before them (None without filters)
+    row_filters: tuple[RowFilter, ...] = ()
     rows_in_file: int | None = None
     # summary statistics: what the file did not give (data.summary_stats.NotGiven), so the fit does not know it
     not_given: tuple = ()
@@ -215,6 +217,9 @@ class DataSummary:
     # the model's coding of answers recorded as words (data.answer_words.coding_record), which scoring other data with
     # this fit reads so too
     answer_coding: tuple = ()
+    # values of the model's items that look like no answers (data.odd_values.OddValues: a missing-value code, a totals
+    # or means row) but were analysed as answers, as the file holds them: the methods paragraph says so
+    odd_values: tuple = ()
 
     @property
     def pair_range(self) -> tuple[int, int] | None:
@@ -248,7 +253,7 @@ class DataSummary:
         if self.pair_rows:
             out["pair_rows"] = [{"items": [a, b], "rows": c} for a, b, c in self.pair_rows]
         if self.row_filters:
-            out.update(row_filters=list(self.row_filters), rows_in_file=self.rows_in_file)
+            out.update(row_filters=[f.text for f in self.row_filters], rows_in_file=self.rows_in_file)
         if self.not_given:
             out["not_given"] = [g.value for g in self.not_given]
         if self.missing_codes:

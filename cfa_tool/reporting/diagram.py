@@ -25,7 +25,9 @@ factors) are then drawn in a row of their own above the bands, and their
 loadings (and a cross-loading that would join two bands) are listed with the
 correlations.
 Arcs between factors leave each ellipse at their own point of its top, so they
-do not all meet at one point.
+do not all meet at one point.  The root element names the heights between bands
+(and between groups), where nothing is drawn, in ``data-breaks``: the Word report
+cuts a drawing too large for one page there (reporting.picture.svg_strips).
 """
 
 from __future__ import annotations
@@ -165,6 +167,7 @@ class _Layout:
     table_top: float = MARGIN  # where the lists of values not drawn begin
     continued: list[tuple[str, tuple[str, ...]]] = field(default_factory=list)  # (factor, its items in a later band)
     shown: dict[str, str] = field(default_factory=dict)  # the short label drawn for an item (see item_labels)
+    breaks: list[float] = field(default_factory=list)  # the middle of each gap between bands, where nothing is drawn
 
     def text(self, name: str) -> str:
         """What the drawing shows for a factor or item."""
@@ -306,6 +309,7 @@ def _layout(result, rows, obs_set) -> _Layout:
         drops = [_drop(depth) for pair, depth in lay.drop_level.items() if lay.band_of[pair[0]] == b]
         y += max(drops, default=0.0) + (20 if drops else 0)
         if b < len(bands) - 1:
+            lay.breaks.append(y + BAND_GAP / 2)
             y += BAND_GAP
     if lay.bottom:
         y += ROW_GAP - 20
@@ -421,7 +425,7 @@ def path_diagram(result, group: int = 0, legend: bool = False) -> str:
 def diagram_with_legend(result, group: int = 0) -> tuple[str, str]:
     """Group ``group``'s drawing (SVG text) and the legend a report puts under it: the parts it shows, only."""
     drawing = _draw(result, group)
-    return _document(result, [group], False, [drawing]), legend_text(result, drawing[3])
+    return _document(result, [group], False, [drawing]), legend_text(result, drawing.drawn)
 
 
 def diagram_file(result) -> str:
@@ -432,16 +436,16 @@ def diagram_file(result) -> str:
 
 def _document(result, groups: list[int], legend: bool, drawings: list | None = None) -> str:
     drawings = drawings or [_draw(result, g) for g in groups]
-    lines = legend_lines(result, frozenset().union(*(d for *_, d in drawings))) if legend else []
+    lines = legend_lines(result, frozenset().union(*(d.drawn for d in drawings))) if legend else []
     key = [(short, name) for name, short in item_labels(result).items()]
     indent = TEXT_EM * LIST_SIZE * (max((len(short) for short, _ in key), default=0) + 1)  # from a label to its name
     key_column = indent + TEXT_EM * LIST_SIZE * max((len(name) for _, name in key), default=0) + 30  # with a gap
-    width = max([w for w, *_ in drawings] + [2 * MARGIN + TEXT_EM * 11 * len(line) for line in lines]
+    width = max([d.width for d in drawings] + [2 * MARGIN + TEXT_EM * 11 * len(line) for line in lines]
                 + ([2 * MARGIN + key_column] if key else []))
     key_columns = max(1, int((width - 2 * MARGIN) // key_column)) if key else 1
     key_rows = math.ceil(len(key) / key_columns)
     key_height = 18 + 16 * key_rows + 10 if key else 0
-    height = sum(h for _, h, *_ in drawings) + key_height + (10 + 18 * len(lines) if lines else 0)
+    height = sum(d.height for d in drawings) + key_height + (10 + 18 * len(lines) if lines else 0)
     labels = [result.groups[g].label for g in groups]
     title = esc(result.model_name) + ("" if labels == [None] else " — group " + ", ".join(esc(str(x)) for x in labels))
     parts = [
@@ -455,11 +459,15 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
     if legend:
         parts.append(f'<rect width="{width:.0f}" height="{height:.0f}" fill="#ffffff"/>')
     y = 0.0
-    for _, h, body, _ in drawings:
+    breaks = []  # where the drawing can be cut into strips that cut nothing: between bands and between groups
+    for k, drawing in enumerate(drawings):
         parts.append(f'<g transform="translate(0,{y:.0f})">')
-        parts.extend(body)
+        parts.extend(drawing.parts)
         parts.append("</g>")
-        y += h
+        breaks += [round(y) + b for b in drawing.breaks] + ([round(y + drawing.height)] if k < len(drawings) - 1 else [])
+        y += drawing.height
+    if breaks:
+        parts[0] = parts[0].replace(' role="img">', f' role="img" data-breaks="{" ".join(f"{b:.0f}" for b in breaks)}">')
     if key:  # the items' names, under the drawing of every group
         parts.append(f'<text class="key-title" x="{MARGIN:.1f}" y="{y + 14:.1f}" font-size="{LIST_SIZE}" '
                      f'font-weight="bold">{KEY_TITLE}</text>')
@@ -469,7 +477,7 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
                          f'font-weight="bold">{esc(short)}</text>')
             parts.append(f'<text class="key" x="{x + indent:.1f}" y="{line_y:.1f}" font-size="{LIST_SIZE}">{esc(name)}</text>')
         y += key_height
-    red = any(Drawn.PROBLEM in d for *_, d in drawings)
+    red = any(Drawn.PROBLEM in d.drawn for d in drawings)
     for k, line in enumerate(lines):
         colour = f' fill="{PROBLEM_COLOUR}"' if red and k == len(lines) - 1 else ""
         parts.append(f'<text class="legend" x="{MARGIN:.1f}" y="{y + 16 + 18 * k:.1f}" font-size="11"{colour}>{esc(line)}</text>')
@@ -477,8 +485,20 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
     return "\n".join(parts) + "\n"
 
 
-def _draw(result, group: int) -> tuple[float, float, list[str], frozenset[Drawn]]:
-    """(width, height, SVG elements, the parts its legend explains) of one group's drawing."""
+@dataclass(frozen=True)
+class Drawing:
+    """One group's drawing: its size, its SVG elements, the heights between its bands where nothing is drawn (where
+    the Word report may cut it into strips) and the parts its legend explains."""
+
+    width: float
+    height: float
+    parts: list[str]
+    breaks: list[float]
+    drawn: frozenset[Drawn]
+
+
+def _draw(result, group: int) -> Drawing:
+    """One group's drawing: its size, SVG elements, the heights between its bands and the parts its legend explains."""
     label = result.groups[group].label
     rows = [r for r in result.estimates if r.group == label] + _block_rows(result)
     problems = getattr(result, "problems", ())
@@ -621,7 +641,7 @@ def _draw(result, group: int) -> tuple[float, float, list[str], frozenset[Drawn]
     parts.append("</g>")
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
-    return lay.width, lay.height + head, parts, frozenset(drawn)
+    return Drawing(lay.width, lay.height + head, parts, [head + b for b in lay.breaks], frozenset(drawn))
 
 
 def _free_spot(spots: list[tuple[float, float]], text: str, placed: list, size: int = 11) -> tuple[float, float]:

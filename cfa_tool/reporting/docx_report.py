@@ -1,6 +1,7 @@
 """The report as a Word document (python-docx), laid out for a manuscript in the style of the APA
 Publication Manual, 7th edition: numbered tables with an italic title, horizontal rules only, notes under
-the table; the methods paragraph; the path diagram as a numbered figure; the cautions.  The problems of
+the table; the methods paragraph; the path diagram as a numbered figure (on a landscape page, or in strips cut
+between its bands, when its labels would print below 7 pt across a portrait page); the cautions.  The problems of
 the solution come first, as in every view.  The tables are the report's own (one report model)."""
 
 from __future__ import annotations
@@ -18,7 +19,8 @@ from docx.shared import Emu, Inches, Pt, RGBColor
 
 from cfa_tool.errors import printable
 from cfa_tool.reporting.column_parts import column_parts, label_columns
-from cfa_tool.reporting.picture import DEFAULT_DPI, page_fit, png_converter, svg_to_png
+from cfa_tool.reporting.picture import (DEFAULT_DPI, page_fit, png_converter, smallest_text, svg_size, svg_strips,
+                                       svg_to_png)
 from cfa_tool.reporting.document import WARNINGS
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.tables import ReportTable
@@ -111,6 +113,47 @@ def _room(document) -> float:
     """The text width of the current section in points."""
     section = document.sections[-1]
     return Emu(section.page_width - section.left_margin - section.right_margin).pt
+
+
+FIGURE_ROOM = 1.0  # inches of a page's text height kept for a figure's caption and note
+LANDSCAPE_GAIN = 1.1  # a figure goes on a landscape page when it prints at least this much larger there
+# the smallest lettering of a figure in print, in points: journals' artwork guides ask for about 6 to 8 pt (common
+# practice); a figure whose labels would print smaller across a portrait page goes on a landscape page
+MIN_FIGURE_TEXT = 7.0
+
+
+def _figure_pieces(document, svg: str) -> tuple[bool, list[str]]:
+    """How a figure is set: (on a landscape page, its drawing whole or in strips).  The first of: whole on a
+    portrait page, whole on a landscape page, in strips on portrait pages, in strips on landscape pages, whose
+    smallest text prints at least ``MIN_FIGURE_TEXT``; the strips are cut between the bands of a diagram of many
+    items (picture.svg_strips), one under the other on following pages.  When none reaches that size, the one that
+    prints largest, if at least ``LANDSCAPE_GAIN`` times larger than whole on the portrait page.  The drawing is the
+    same in every case."""
+    width, height = svg_size(svg)
+    areas = _figure_areas(document)
+    choices = []  # (inches per unit of the drawing, landscape, pieces), in the order of preference
+    for pieces_of in (lambda w, h: [svg], lambda w, h: svg_strips(svg, h * width / w)):
+        for landscape in (False, True):
+            w, h = areas[landscape]
+            pieces = pieces_of(w, h)
+            choices.append((min(w / width, h / max(svg_size(piece)[1] for piece in pieces)), landscape, pieces))
+    for scale, landscape, pieces in choices:
+        smallest = smallest_text(svg, scale * width)
+        if smallest is None or smallest >= MIN_FIGURE_TEXT:
+            return landscape, pieces
+    scale, landscape, pieces = max(choices, key=lambda c: c[0])
+    return (landscape, pieces) if scale > LANDSCAPE_GAIN * choices[0][0] else (False, [svg])
+
+
+def _figure_areas(document) -> tuple[tuple[float, float], tuple[float, float]]:
+    """The room for a figure, width by height in inches, on a portrait and on a landscape page of ``document``'s
+    paper and margins (the text area less ``FIGURE_ROOM``): a drawing set to the narrower width of a portrait page
+    shrinks its labels with it, so a wide drawing (a model of many items) prints larger across a landscape page."""
+    section = document.sections[-1]
+    long_side, short_side = max(section.page_width, section.page_height), min(section.page_width, section.page_height)
+    across, down = section.left_margin + section.right_margin, section.top_margin + section.bottom_margin
+    return ((Emu(short_side - across).inches, Emu(long_side - down).inches - FIGURE_ROOM),
+            (Emu(long_side - across).inches, Emu(short_side - down).inches - FIGURE_ROOM))
 
 
 def _set_orientation(document, landscape: bool) -> None:
@@ -293,12 +336,17 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
             document.add_paragraph(NO_PICTURE)
         else:
             for number, figure in enumerate(report.figures, start=1):
-                _caption(document, f"Figure {number}", figure.title)
-                png = svg_to_png(figure.svg, dpi)
-                side, inches = page_fit(png)
-                document.add_picture(io.BytesIO(png), **{side: Inches(inches)})
+                wider, pieces = _figure_pieces(document, figure.svg)
+                area = _figure_areas(document)[wider]
+                _set_orientation(document, wider)  # a wide drawing (many items) on a landscape page: larger labels
+                for k, piece in enumerate(pieces):
+                    _caption(document, f"Figure {number}" + (" (continued)" if k else ""), figure.title)
+                    png = svg_to_png(piece, dpi)
+                    side, inches = page_fit(png, *area)
+                    document.add_picture(io.BytesIO(png), **{side: Inches(inches)})
                 if figure.note:
                     _note(document, figure.note)
+            _set_orientation(document, landscape=False)
     section = ""
     for number, table in enumerate(report.tables, start=1):
         if table.section and table.section != section:

@@ -22,6 +22,7 @@ from cfa_tool.assessment.reliability import Keying
 from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.data.answer_words import coding_described
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
+from cfa_tool.language.names import written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.numbers import index_text, num, p_phrase, signed, unit
@@ -39,8 +40,19 @@ def _p(p: float) -> str:
     return f"p {p_phrase(p)}"
 
 
+def _name(name) -> str:
+    """An item, factor, group or column as the model language writes it, in double quotes unless a plain word
+    (language.names.written_name), so that names holding commas or full stops do not run together in a list."""
+    return written_name(str(name))
+
+
+def _names(names) -> str:
+    """Names as a sentence lists them, each written by :func:`_name`."""
+    return _list([_name(n) for n in names])
+
+
 def _pair(pair) -> str:
-    return f"{pair[0]} with {pair[1]}"
+    return f"{_name(pair[0])} with {_name(pair[1])}"
 
 
 def _correlation_kinds(result) -> tuple[str, str]:
@@ -105,7 +117,7 @@ def _structure(result, d) -> str:
     if n_first == 0:
         factors = ""
     elif n_first == 1:
-        factors = f"one {noun} ({traits[0]})"
+        factors = f"one {noun} ({_name(traits[0])})"
     else:
         if pairs and all(p in held for p in pairs):
             kind = f"uncorrelated {noun}s"
@@ -113,22 +125,22 @@ def _structure(result, d) -> str:
             kind = f"correlated {noun}s"
         else:
             kind = f"{noun}s"
-        factors = f"{_count(n_first, kind[:-1], kind)} ({_list(traits)})"
+        factors = f"{_count(n_first, kind[:-1], kind)} ({_names(traits)})"
     if methods:
         named = [f for f in d.first_order if f in methods]
-        factors += f" and {_count(len(named), 'method factor')} ({_list(named)})"
+        factors += f" and {_count(len(named), 'method factor')} ({_names(named)})"
     if d.exploratory:  # each part with its own items: a block's, and the confirmatory factors'
         parts = [f"{_count(len(d.confirmatory_indicators), 'indicator')} of {factors}"] if factors else []
-        parts += [f"{_count(len(items), 'indicator')} of {_count(len(f), 'exploratory factor')} ({_list(list(f))})"
+        parts += [f"{_count(len(items), 'indicator')} of {_count(len(f), 'exploratory factor')} ({_names(f)})"
                   for f, items, _ in d.exploratory]
         text = _list(parts)
     else:
         text = f"{_count(len(d.indicators), 'indicator')} of {factors}"
     if len(d.higher_order) == 1:
         higher, lower = d.higher_order[0]
-        text += f", with a higher-order factor ({higher}) explaining {_list(lower)},"
+        text += f", with a higher-order factor ({_name(higher)}) explaining {_names(lower)},"
     elif d.higher_order:
-        text += (", with higher-order factors " + _list([f"{higher} (explaining {_list(lower)})"
+        text += (", with higher-order factors " + _list([f"{_name(higher)} (explaining {_names(lower)})"
                                                          for higher, lower in d.higher_order]) + ",")
     return text
 
@@ -136,7 +148,7 @@ def _structure(result, d) -> str:
 def _parameter(ref: tuple, d) -> str:
     """A model file's parameter (kind, names, group) in words: 'the loading of x2 on visual'."""
     kind, names, group = ref
-    return parameter_words(kind, tuple(names), group, d.indicators)
+    return parameter_words(kind, tuple(names), group, d.indicators, quoted=True)
 
 
 def _scale_sentence(d) -> str:
@@ -147,9 +159,9 @@ def _scale_sentence(d) -> str:
     sentences = [_scales_in_words(shared, d.scales)] if shared else []
     for label, scales in d.group_scales:
         words = _scales_in_words([s for s in scales if s not in shared], scales)
-        sentences.append(f"In group {label}, {words[:1].lower()}{words[1:]}")
+        sentences.append(f"In group {_name(label)}, {words[:1].lower()}{words[1:]}")
     different = [s.factor for s in d.scales if s not in shared]
-    sentences.append(f"Scaled differently in different groups, {_list(different)} "
+    sentences.append(f"Scaled differently in different groups, {_names(different)} "
                      f"{'are' if len(different) > 1 else 'is'} not on the same metric in every group.")
     return " ".join(sentences)
 
@@ -163,15 +175,16 @@ def _scales_in_words(chosen, every) -> str:
     for (method, disturbance), scales in by_method.items():
         names = [s.factor for s in scales]
         whose = "each factor" if len(scales) == len(every) and len(scales) > 1 else (
-            "the factor" if len(every) == 1 else _list(names))
+            "the factor" if len(every) == 1 else _names(names))
         subject = f"the scales of {whose} were" if len(scales) > 1 and whose != "each factor" else f"the scale of {whose} was"
         if method == "marker":
-            markers = _list([f"{s.marker} for {s.factor}" for s in scales]) if len(scales) > 1 else scales[0].marker
+            markers = (_list([f"{_name(s.marker)} for {_name(s.factor)}" for s in scales]) if len(scales) > 1
+                       else _name(scales[0].marker))
             parts.append(f"{subject} set by fixing the loading of one indicator to 1 ({markers})"
                          + _keyed_markers(scales))
         elif method == "variance":
             which = "disturbance variance" if disturbance else "variance"
-            whose = _list(names) if disturbance else whose
+            whose = _names(names) if disturbance else whose
             subject = f"the scales of {whose} were" if len(scales) > 1 and whose != "each factor" else f"the scale of {whose} was"
             parts.append(f"{subject} set by fixing {'their' if len(names) > 1 and whose != 'each factor' else 'its'} "
                          f"{which}{'s' if len(names) > 1 and whose != 'each factor' else ''} to 1")
@@ -179,7 +192,7 @@ def _scales_in_words(chosen, every) -> str:
             turned = [x for s in scales for x in s.counted_reversed]
             parts.append(f"{subject} set by effects coding, the loadings of each factor constrained to average 1 "
                          f"(Little, Slegers & Card, 2006)" + (
-                             f", the loadings of {_list(turned)}, declared reverse-keyed, counted with their signs "
+                             f", the loadings of {_names(turned)}, declared reverse-keyed, counted with their signs "
                              f"turned" if turned else ""))
         else:
             parts.append(f"{subject} set by parameters the model fixes")
@@ -195,13 +208,13 @@ def _keyed_markers(scales) -> str:
     against = [s for s in scales if s.marker_loading < 0]
     words = []
     if passed:
-        items = _list([x for s in passed for x in s.passed_over])
+        items = _names([x for s in passed for x in s.passed_over])
         several = sum(len(s.passed_over) for s in passed) > 1
         words.append(f"{items}, declared reverse-keyed, {'were' if several else 'was'} not taken as "
                      f"marker{'s' if several else ''}, so that {'their factors point the way of their traits' if several else 'its factor points the way of its trait'}")
     if against:
-        words.append(f"every item of {_list([s.factor for s in against])} is declared reverse-keyed, so the "
-                     f"loading of {_list([s.marker for s in against])} was fixed to -1 instead")
+        words.append(f"every item of {_names([s.factor for s in against])} is declared reverse-keyed, so the "
+                     f"loading of {_names([s.marker for s in against])} was fixed to -1 instead")
     return f"; {'; '.join(words)}" if words else ""
 
 
@@ -214,15 +227,15 @@ def _block_sentences(result, d) -> str:
         kind = "oblique" if block is None or block.oblique else "orthogonal"
         target = " towards the zeros the model file names (partially specified target; Browne 1972)" \
             if rotation == "target" else ""
-        opening = (f"The loadings of {_list(list(factors))} on every one of {_count(len(items), 'item')} "
-                   f"({_list(list(items))}) were estimated as an exploratory block (exploratory structural equation "
+        opening = (f"The loadings of {_names(factors)} on every one of {_count(len(items), 'item')} "
+                   f"({_names(items)}) were estimated as an exploratory block (exploratory structural equation "
                    f"modelling; Asparouhov & Muthén, 2009): ")
         if len(factors) == 1:
             out.append(opening + "one factor, with its variance fixed to 1 (one factor: no rotation); its loadings are "
                                  "reported standardized by the items' model-implied standard deviations.")
             continue
         naming = (" Each factor's name was given to the rotated factor on which the block's item of the same position "
-                  f"({_list(list(items[:len(factors)]))}) loads most, signed so that this item loads positively."
+                  f"({_names(items[:len(factors)])}) loads most, signed so that this item loads positively."
                   if block is not None and block.names_by is FactorNaming.ANCHOR_ITEMS else "")
         errors = ("Standard errors of the rotated loadings and factor correlations are delta-method values (implicit "
                   "differentiation of the rotation's conditions)"
@@ -241,7 +254,7 @@ def _departures(d) -> str:
     methods = set(d.method_factors)
     for item, factors in d.cross_loadings:
         if sum(f not in methods for f in factors) > 1:  # a loading on a method factor is not a cross-loading
-            parts.append(f"a cross-loading of {item} (on {_list(list(factors))})")
+            parts.append(f"a cross-loading of {_name(item)} (on {_names(factors)})")
     if d.residual_covariances:
         n = len(d.residual_covariances)
         parts.append(f"{_count(n, 'residual covariance')} ({_list([_pair(p) for p in d.residual_covariances])})")
@@ -253,12 +266,12 @@ def _departures(d) -> str:
         sentences.append(f"The model also included {_list(parts)}.")
     if d.method_factors:
         many = len(d.method_factors) > 1
-        sentences.append(f"The {'factors' if many else 'factor'} {_list(list(d.method_factors))} "
+        sentences.append(f"The {'factors' if many else 'factor'} {_names(d.method_factors)} "
                          f"{'stand' if many else 'stands'} for a way of answering, not a trait: "
                          f"{'they get' if many else 'it gets'} no reliability or discriminant-validity coefficients.")
 
     if d.uncorrelated:
-        pairs = _list([f"{a} and {b}" for a, b in d.uncorrelated])
+        pairs = _list([f"{_name(a)} and {_name(b)}" for a, b in d.uncorrelated])
         sentences.append(f"The covariance{'s' if len(d.uncorrelated) > 1 else ''} of {pairs} "
                          f"{'were' if len(d.uncorrelated) > 1 else 'was'} fixed at zero.")
     for group in d.equal:
@@ -313,6 +326,18 @@ def _read_as_missing(data) -> str:
     return "; ".join(clauses)
 
 
+def _kept_as_answers(data) -> str:
+    """The values of the items that look like no answers (a missing-value code, a totals or means row:
+    data.odd_values) but were analysed as answers, as the file holds them, in a clause of the rows' phrase ('' when
+    there are none)."""
+    found = [o.kept_words() for o in getattr(data, "odd_values", ())]
+    if not found:
+        return ""
+    one = len(found) == 1
+    return (f"{'; '.join(found)}; {'this was' if one else 'these were'} analysed as answers, as the file holds "
+            f"{'it' if one else 'them'}")
+
+
 def _lowest_coverage(result) -> float | None:
     """The smallest share of the rows that answered an item: from the fit's missing-data summary, or, for a fit
     without one (the steps of an invariance ladder), from the rows answering each item in each group (None when
@@ -328,9 +353,7 @@ def _lowest_coverage(result) -> float | None:
 
 def _sample_phrase(result) -> str:
     data = result.data
-    text = f"N = {result.n_obs}"
-    if data.row_filters:
-        text += f" of the {data.rows_in_file} rows in the data file, those where {_filters_in_words(data.row_filters)}"
+    text = f"N = {result.n_obs}" + _filtered(data)
     full_information = result.method.full_information
     low = _lowest_coverage(result) if full_information else None
     if low is not None:
@@ -344,6 +367,9 @@ def _sample_phrase(result) -> str:
     read = _read_as_missing(data)
     if read:
         text += f"; {read}"
+    kept = _kept_as_answers(data)
+    if kept:
+        text += f"; {kept}"
     without_group = getattr(data, "without_group", 0)
     dropped = data.rows_dropped - without_group
     if dropped:
@@ -356,24 +382,18 @@ def _sample_phrase(result) -> str:
     return text
 
 
-def _filters_in_words(filters) -> str:
-    """The row filters (--keep) as a methods section words them, joined by 'and'; a filter the filter reader cannot
-    read (none should reach here) keeps its own text."""
-    from cfa_tool.data.filters import parse_filter
-    from cfa_tool.errors import OptionError
-
-    words = []
-    for text in filters:
-        try:
-            words.append(parse_filter(str(text)).in_words())
-        except OptionError:
-            words.append(repr(str(text)))
-    return _list(words)
+def _filtered(data) -> str:
+    """' of the 301 rows in the data file, those where school was Pasteur': the rows the row filters (--keep) chose,
+    each filter worded by RowFilter.in_words ('' without filters)."""
+    if not data.row_filters:
+        return ""
+    return (f" of the {data.rows_in_file} rows in the data file, those where "
+            f"{_list([f.in_words() for f in data.row_filters])}")
 
 
 def _without_group_clause(count: int, read: int, column: str | None) -> str:
     """'; 48 of 480 rows had no value in the group column (district) and were left out'."""
-    where = f" ({column})" if column else ""
+    where = f" ({_name(column)})" if column else ""
     return (f"; {count} of {read} row{'s' if read != 1 else ''} had no value in the group column{where} and "
             f"{'was' if count == 1 else 'were'} left out")
 def answer_coding_sentence(data) -> str:
@@ -385,7 +405,7 @@ def answer_coding_sentence(data) -> str:
         return ""
     if len(record) == 1 and set(record[0][0]) >= set(getattr(data, "variables", ())):  # every item coded alike
         return f"Answers recorded as words were coded {coding_described(record[0][1])}."
-    each = "; ".join(f"{coding_described(answers)} for {_list(list(items))}" for items, answers in record)
+    each = "; ".join(f"{coding_described(answers)} for {_names(items)}" for items, answers in record)
     return f"Answers recorded as words were coded {each}."
 
 
@@ -435,8 +455,8 @@ def _method_items(result, factor: str) -> list[str]:
 def _weak_factor_sentence(result, subject: str) -> str:
     """Sentences on the method factors of ``result`` that carry next to nothing and on factors that point against
     their items ('' when there are none)."""
-    weak = [p.phrase() for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
-    turned = [p.phrase() for p in result.problems if p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS]
+    weak = [p.phrase(quoted=True) for p in result.problems if p.kind is ProblemKind.WEAK_METHOD_FACTOR]
+    turned = [p.phrase(quoted=True) for p in result.problems if p.kind is ProblemKind.FACTOR_POINTS_AGAINST_ITEMS]
     parts = []
     if weak:
         parts.append(f"{subject} has {_list(weak)} (a common-practice guide for negligible loadings): its items share "
@@ -452,7 +472,7 @@ def _reverse_keyed_sentence(d) -> str:
     parts = []
     for items, lowest, highest in d.reverse_keyed:
         many = len(items) > 1
-        parts.append(f"the item{'s' if many else ''} {_list(list(items))} {'were' if many else 'was'} declared "
+        parts.append(f"the item{'s' if many else ''} {_names(items)} {'were' if many else 'was'} declared "
                      f"reverse-keyed (worded against {'their factors' if many else 'its factor'}; answers from "
                      f"{lowest:g} to {highest:g})")
     return _capital("; ".join(parts)) + "." if parts else ""
@@ -469,7 +489,7 @@ def _method_scale_sentence(d) -> str:
     a 'reversed' statement does not orient method factors, so the marker is the method factor's first item at +1
     and the factor points the way of its items' raw answers ('' when no method factor is in that case)."""
     keyed = {x for items, _, _ in d.reverse_keyed for x in items}
-    clauses = [f"the loading of {s.factor}'s first item, {s.marker}, was fixed to +1, so that {s.factor} points the "
+    clauses = [f"the loading of {_name(s.factor)}'s first item, {_name(s.marker)}, was fixed to +1, so that {_name(s.factor)} points the "
                f"way of its items' raw answers" for s in d.scales
                if s.factor in set(d.method_factors) and s.method == "marker" and s.marker in keyed]
     if not clauses:
@@ -486,7 +506,7 @@ def _keyed_sum_words(rows) -> str:
     why = ("as declared" if declared else
            f"as {'their loadings run' if len(reversed_items) > 1 else 'its loading runs'} against the other items of "
            f"{'their factors' if len(reversed_items) > 1 else 'its factor'}")
-    return f", with {_list(reversed_items)} reversed in the sums ({why})"
+    return f", with {_names(reversed_items)} reversed in the sums ({why})"
 
 
 def _reliability_sentence(result) -> str:
@@ -505,7 +525,7 @@ def _reliability_sentence(result) -> str:
         found = [r for r in rows if shown(r.observed_sum_omega)]
         if not found:
             return ""
-        values = _list([f"{unit(r.observed_sum_omega, 2)} for {r.factor}" for r in found])
+        values = _list([f"{unit(r.observed_sum_omega, 2)} for {_name(r.factor)}" for r in found])
         return (f"The reliability of the factors' keyed sums of the answers' codes (the omega of the observed sum, from "
                 f"the fitted thresholds, loadings and factor variances; Green & Yang, 2009) was {values}"
                 f"{_keyed_sum_words(found)}.")
@@ -513,10 +533,10 @@ def _reliability_sentence(result) -> str:
     higher = [r for r in rows if r.level == "higher-order" and shown(r.omega_hierarchical)]
     parts = []
     if first:
-        parts.append(f"omega (McDonald, 1999) was {_list([f'{unit(r.omega, 2)} for {r.factor}' for r in first])}")
+        parts.append(f"omega (McDonald, 1999) was {_list([f'{unit(r.omega, 2)} for {_name(r.factor)}' for r in first])}")
     if higher:
         parts.append("omega hierarchical (Zinbarg, Revelle, Yovel & Li, 2005) was "
-                     + _list([f"{unit(r.omega_hierarchical, 2)} for {r.factor}" for r in higher]))
+                     + _list([f"{unit(r.omega_hierarchical, 2)} for {_name(r.factor)}" for r in higher]))
     if not parts:
         return ""
     return (f"For the reliability of the factors' keyed sum scores, {'; '.join(parts)}"
@@ -536,11 +556,11 @@ def _factor_means_sentence(result) -> str:
     every = {r.variables[0] for r in means}
     if len(at_zero) == len(labels):
         return "The factor means were fixed at zero in every group."
-    parts = [f"fixed at zero in {_list(at_zero)}"] if at_zero else []
+    parts = [f"fixed at zero in {_names(at_zero)}"] if at_zero else []
     whole = [g for g in labels if estimated[g] and set(estimated[g]) == every]
     if whole:
-        parts.append(f"estimated in {_list(whole)}")
-    parts += [f"estimated for {_list(estimated[g])} in {g}" for g in labels if estimated[g] and g not in whole]
+        parts.append(f"estimated in {_names(whole)}")
+    parts += [f"estimated for {_names(estimated[g])} in {_name(g)}" for g in labels if estimated[g] and g not in whole]
     return f"The factor means were {_list(parts)}." if parts else ""
 
 
@@ -561,7 +581,7 @@ def _latent_response_sentence(result) -> str:
     for g in result.groups:
         patterns.setdefault((state("intercept", g.label, 0.0), state("residual_variance", g.label, 1.0)),
                             []).append(g.label)
-    phrases = [f"intercepts {a} and residual variances {b} in {_list(labels) if len(patterns) > 1 else 'every group'}"
+    phrases = [f"intercepts {a} and residual variances {b} in {_names(labels) if len(patterns) > 1 else 'every group'}"
                for (a, b), labels in patterns.items()]
     return (f"The latent responses behind the ordinal items had {'; '.join(phrases)} (the identification of Wu & "
             f"Estabrook, 2016).")
@@ -571,8 +591,8 @@ def methods_paragraph(result) -> str:
     if not result.converged or result.fit is None:
         return "The model did not converge, so no results are reported."
     d = result.description
-    groups = (f" in {_count(len(result.groups), 'group')} defined by {result.group_column} ("
-              + "; ".join(f"{g.label}, n = {g.data.n_obs}" for g in result.groups) + ")" if result.multigroup else "")
+    groups = (f" in {_count(len(result.groups), 'group')} defined by {_name(result.group_column)} ("
+              + "; ".join(f"{_name(g.label)}, n = {g.data.n_obs}" for g in result.groups) + ")" if result.multigroup else "")
     parts = []
     if d is not None:
         parts.append(f"A confirmatory factor analysis with {_structure(result, d)} was estimated{groups} by "
@@ -586,6 +606,10 @@ def methods_paragraph(result) -> str:
         if d.invariant:
             parts.append(f"Held equal across groups: {_list(equality_words(d.invariant))}" + (
                 f", except {_list([_parameter(r, d) for r in d.noninvariant])}" if d.noninvariant else "") + ".")
+        elif result.multigroup:  # a reviewer must not take the groups' estimates for invariant ones
+            parts.append("No invariance constraints were imposed: the parameters were estimated separately in each "
+                         "group, with the same pattern in every group" + (
+                             " (apart from the equality constraints above)" if d.equal else "") + ".")
         parts += [sentence for sentence in (_factor_means_sentence(result), _latent_response_sentence(result))
                   if sentence]
     else:
@@ -601,7 +625,7 @@ def methods_paragraph(result) -> str:
     inadmissible = not result.admissible
     if inadmissible:
         serious = [p for p in result.problems if p.kind.inadmissible]
-        named = [p.phrase() for p in serious]
+        named = [p.phrase(quoted=True) for p in serious]
         if all(p.kind is ProblemKind.ON_BOUND for p in serious):
             parts.append(f"The solution lies on a boundary ({_list(named)}): the unrestricted estimate would lie beyond "
                          f"the bound, so the solution is not admissible as it stands, and standard errors and tests "
@@ -634,7 +658,7 @@ def methods_paragraph(result) -> str:
         on_factor = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[0] == factor
                      and r.variables[1] in result.observed]
         if items:
-            parts.append(f"The method factor {factor} was indicated by {_list(items)}; its standardized loadings "
+            parts.append(f"The method factor {_name(factor)} was indicated by {_names(items)}; its standardized loadings "
                          f"{_range(on_factor)}.")
     higher = {r.variables[0] for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed}
     if second:
@@ -646,7 +670,7 @@ def methods_paragraph(result) -> str:
     if corr and not result.multigroup:
         which = " of the confirmatory factors" if blocks else ""
         if higher and all(set(r.variables) <= higher for r in correlated):
-            which = " of the higher-order factors" + (f" ({_list(sorted(higher))})" if len(corr) == 1 else "")
+            which = " of the higher-order factors" + (f" ({_names(sorted(higher))})" if len(corr) == 1 else "")
         if len(corr) == 1:
             parts.append(f"The {'' if which.startswith(' of the higher') else 'factor '}correlation{which} was "
                          f"{unit(corr[0], 2)}.")
@@ -718,8 +742,11 @@ def _comparison_rows(comparison) -> str:
             if dropped and comparison.missing is not MissingData.LISTWISE else "")
     if without:
         left += _without_group_clause(without, read_rows, comparison.results[0].group_column)
-    read = _read_as_missing(comparison.results[0].data)
-    return f"N = {n}" + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
+    data = comparison.results[0].data
+    read = _read_as_missing(data)
+    kept = _kept_as_answers(data)
+    return (f"N = {n}" + _filtered(data) + (f"; {how}" if how else "") + left + (f"; {read}" if read else "")
+            + (f"; {kept}" if kept else ""))
 
 
 def comparison_paragraph(comparison) -> str:
@@ -737,8 +764,8 @@ def comparison_paragraph(comparison) -> str:
         of = f"of {WORDS.get(counts[0], str(counts[0]))} to {_count(counts[-1], 'indicator')}"
     else:
         of = f"of {_count(counts[0], 'indicator')} each, not all the same items,"
-    groups = (f" in {_count(len(first.groups), 'group')} defined by {first.group_column}"
-              f" ({_list([str(g.label) for g in first.groups])})" if first.multigroup else "")
+    groups = (f" in {_count(len(first.groups), 'group')} defined by {_name(first.group_column)}"
+              f" ({_names([g.label for g in first.groups])})" if first.multigroup else "")
     matrix = _matrix_sentence(first, "The models were")
     same = "summary statistics" if matrix else "rows"
     parts = [f"{_capital(_count(len(names), 'model'))} {of} were compared on the same {same} "
@@ -753,7 +780,7 @@ def comparison_paragraph(comparison) -> str:
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
     for name, r in zip(names, results):  # problems first: before the figures a reader might take as support
         if r.converged and not r.admissible:
-            found = _list([p.phrase() for p in r.problems if p.kind.inadmissible])
+            found = _list([p.phrase(quoted=True) for p in r.problems if p.kind.inadmissible])
             parts.append(f"The solution of {label[name]} was not admissible ({found}): its fit is not evidence for it.")
     parts.append(f"Fit{statistic}: " + "; ".join(f"{label[name]}, {_fit_figures(r)}" for name, r in zip(names, results)) + ".")
     for name, r in zip(names, results):
@@ -868,7 +895,7 @@ def _step_problems(steps) -> str:
         if not step.result.converged:
             clauses.append(f"the estimation of the {step.level} model did not converge")
         elif not step.result.admissible:
-            found = _list([p.phrase() for p in step.result.problems if p.kind.inadmissible])
+            found = _list([p.phrase(quoted=True) for p in step.result.problems if p.kind.inadmissible])
             clauses.append(f"the solution of the {step.level} model was not admissible ({found})")
     if not clauses:
         return ""
@@ -884,14 +911,14 @@ def invariance_paragraph(result, levels) -> str:
     with what a partial-invariance search freed, and the latent mean differences of the scalar model."""
     steps = result.steps
     first = steps[0].result
-    sizes = "; ".join(f"{g.label}, n = {g.data.n_obs}" for g in first.groups)
+    sizes = "; ".join(f"{_name(g.label)}, n = {g.data.n_obs}" for g in first.groups)
     held = {level: classes for level, classes, *_ in levels}
     ladder = []
     for step in steps:
         classes = held.get(step.level, ())
         ladder.append(step.level if not classes else
                       f"{step.level} ({_list([_HELD_EQUAL.get(c, c) for c in classes])} equal across groups)")
-    parts = [f"Measurement invariance across {result.group_column} ({_count(len(result.groups), 'group')}: {sizes}) "
+    parts = [f"Measurement invariance across {_name(result.group_column)} ({_count(len(result.groups), 'group')}: {sizes}) "
              f"was tested with a sequence of models, each adding equality constraints to the one before: "
              f"{_list(ladder)}"
              + ("; thresholds before loadings as Wu & Estabrook (2016) set out" if first.method.ordinal else "") + "."]
@@ -899,7 +926,7 @@ def invariance_paragraph(result, levels) -> str:
     if d is not None:
         parts.append(f"The configural model had {_structure(first, d).rstrip(',')}, with the same pattern in every "
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
-                     f"{result.groups[0]} were fixed at zero.")
+                     f"{_name(result.groups[0])} were fixed at zero.")
         parts += _scale_sentences(d)
         departures = _departures(d)
         if departures:
@@ -926,7 +953,7 @@ def invariance_paragraph(result, levels) -> str:
             _list([str(r) for r in step.declared])
         earlier = [(f, s.level) for s in steps[1:k] for f in s.freed]  # freed by the search before: still free
         if earlier and not step.partial:
-            kept = _list([f"{parameter_words(f.kind, f.variables)} (freed at the {level} step)"
+            kept = _list([f"{parameter_words(f.kind, f.variables, quoted=True)} (freed at the {level} step)"
                           for f, level in earlier])
             extra = f" and {declared} not held equal as the model file declares" if step.declared else ""
             parts.append(f"{name} invariance, partial with {kept} still free{extra}, {_held(step, basis)} "
@@ -938,7 +965,7 @@ def invariance_paragraph(result, levels) -> str:
             full = step.full_test
             with_all = (f"{CHI}({full.df_difference}) = {full.chi_square_difference:.2f}, {_p(full.p_value)}"
                         if full is not None and not full.not_computed else "no difference statistic")
-            freed = _list([parameter_words(f.kind, f.variables) for f in step.freed])
+            freed = _list([parameter_words(f.kind, f.variables, quoted=True) for f in step.freed])
             state = ("still did not hold" if not step.holds and step.result.admissible else
                      "held" if step.holds and not basis else "met its test" if step.holds else _held(step, basis))
             after = f" but cannot be read as held: it rests on {basis}" if step.holds and basis else ""
@@ -958,24 +985,24 @@ def invariance_paragraph(result, levels) -> str:
                      f"that did not hold, so {'they compare' if len(conditional) > 1 else 'it compares'} models "
                      f"already rejected.")
     if result.latent_differences:
-        diffs = "; ".join(f"{x.factor} in {x.group}, {num(x.mean, 2)} (SE = {num(x.se, 2)}, {_p(x.p_value)}, "
+        diffs = "; ".join(f"{_name(x.factor)} in {_name(x.group)}, {num(x.mean, 2)} (SE = {num(x.se, 2)}, {_p(x.p_value)}, "
                           f"d = {num(x.standardized, 2)})" for x in result.latent_differences)
         scalar = next(k for k, s in enumerate(steps) if s.level == "scalar")
         basis = _basis(steps, scalar)
         source = (f"atent mean differences from the "
                   f"{'partially invariant ' if any(s.partly_equal for s in steps if s.level != 'strict') else ''}"
                   f"scalar model")
-        against = f"against {result.groups[0]} (d: over the pooled latent standard deviation): {diffs}."
+        against = f"against {_name(result.groups[0])} (d: over the pooled latent standard deviation): {diffs}."
         parts.append(f"Resting on {basis}, the l{source} cannot be read as established; {against}" if basis else
                      f"L{source}, {against}")
         totals = list(dict.fromkeys(x.factor for x in result.latent_differences if x.total))
         if totals:
-            parts.append(f"For {_list(totals)}, explained by a higher-order factor, these are the total means and "
+            parts.append(f"For {_names(totals)}, explained by a higher-order factor, these are the total means and "
                          f"variances the model implies (Bollen, 1989), not those of the disturbances.")
     if result.latent_differences and result.means_not_estimated:
         many = len(result.means_not_estimated) > 1
         parts.append(f"The mean{'s' if many else ''} of the higher-order factor{'s' if many else ''} "
-                     f"{_list(list(result.means_not_estimated))} {'were' if many else 'was'} fixed at zero in every "
+                     f"{_names(result.means_not_estimated)} {'were' if many else 'was'} fixed at zero in every "
                      f"group (the means of the factors {'they explain' if many else 'it explains'} were free), so no "
                      f"difference was estimated for {'them' if many else 'it'}.")
     elif result.latent_note and not result.latent_differences:  # why there are none (the note of the table else)

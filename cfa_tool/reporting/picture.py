@@ -3,6 +3,7 @@ chosen resolution or to PDF, both on a white background."""
 
 from __future__ import annotations
 
+import re
 import shutil
 import subprocess
 import tempfile
@@ -75,13 +76,65 @@ def _convert(svg: str, kind: PictureFormat, dpi: int) -> bytes:
         return out.read_bytes()
 
 
+def png_size(png: bytes) -> tuple[int, int]:
+    """The width and height of a PNG picture in pixels, read from its IHDR chunk (PNG specification, section
+    11.2.2)."""
+    return int.from_bytes(png[16:20], "big"), int.from_bytes(png[20:24], "big")
+
+
 def page_fit(png: bytes, width: float = 6.5, height: float = 8.0) -> tuple[str, float]:
     """Which side of a PNG picture to set, and to how many inches, so that it fills the width of a page's text
     area without running off its foot: ``width`` by ``height`` inches, the text area of a letter page with margins
-    of one inch less room for the figure's caption and note.  Width and height are read from the
-    IHDR chunk (PNG specification, section 11.2.2)."""
-    pixels_wide = int.from_bytes(png[16:20], "big")
-    pixels_high = int.from_bytes(png[20:24], "big")
+    of one inch less room for the figure's caption and note."""
+    pixels_wide, pixels_high = png_size(png)
     if pixels_high * width > pixels_wide * height:
         return "height", height
     return "width", width
+
+
+_FONT_SIZE = re.compile(r'font-size="([0-9.]+)"')
+_SVG_WIDTH = re.compile(r'<svg[^>]*?\swidth="([0-9.]+)"')
+
+
+def smallest_text(svg: str, inches: float) -> float | None:
+    """The size in points of the smallest text of the SVG drawing ``svg`` (this tool's: sizes in font-size
+    attributes, its width in user units on the root element) printed ``inches`` wide; None without text."""
+    sizes = [float(s) for s in _FONT_SIZE.findall(svg)]
+    width = _SVG_WIDTH.search(svg)
+    if not sizes or width is None or not float(width.group(1)):
+        return None
+    return min(sizes) * inches * 72.0 / float(width.group(1))
+
+
+_SVG_HEIGHT = re.compile(r'<svg[^>]*?\sheight="([0-9.]+)"')
+_BREAKS = re.compile(r'<svg[^>]*?\sdata-breaks="([0-9. ]+)"')
+
+
+def svg_size(svg: str) -> tuple[float, float]:
+    """The width and height of an SVG drawing of this tool, in user units, from its root element."""
+    return float(_SVG_WIDTH.search(svg).group(1)), float(_SVG_HEIGHT.search(svg).group(1))
+
+
+def svg_strips(svg: str, most: float) -> list[str]:
+    """The SVG drawing ``svg`` cut across into strips at most ``most`` user units high, each as an SVG drawing of
+    its own: cut only where the drawing says nothing is drawn (its root's ``data-breaks``: between the bands of a
+    diagram of many items, and between groups), as few strips as that allows; a part between two cuts that is
+    higher than ``most`` is a strip of its own.  ``[svg]`` when it is not cut."""
+    found, width, height = _BREAKS.search(svg), _SVG_WIDTH.search(svg), _SVG_HEIGHT.search(svg)
+    if found is None or width is None or height is None or float(height.group(1)) <= most:
+        return [svg]
+    w, h = float(width.group(1)), float(height.group(1))
+    cuts = [0.0]
+    candidates = sorted(float(b) for b in found.group(1).split()) + [h]
+    for k, at in enumerate(candidates[:-1]):
+        if candidates[k + 1] - cuts[-1] > most:
+            cuts.append(at)
+    cuts.append(h)
+    head = svg[:svg.index(">", svg.index("<svg")) + 1]
+    strips = []
+    for top, bottom in zip(cuts, cuts[1:]):
+        root = re.sub(r'viewBox="[^"]*"', f'viewBox="0 {top:.0f} {w:.0f} {bottom - top:.0f}"', head, count=1)
+        found = _SVG_HEIGHT.search(root)
+        root = root[:found.start(1)] + f"{bottom - top:.0f}" + root[found.end(1):]
+        strips.append(root + svg[len(head):])
+    return strips

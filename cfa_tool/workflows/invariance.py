@@ -255,7 +255,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     spec, loaded, read_notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
     # values that look like no answers, among the rows with a group label: first among the cautions
-    data_cautions = tuple(p.line() for p in odd_value_problems(analysed_odd_values(loaded, spec, group), group))
+    analysed = analysed_odd_values(loaded, spec, group)
+    data_cautions = tuple(p.line() for p in odd_value_problems(analysed, group))
     if spec.invariant:
         where = spec.equalities_location
         raise ModelError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "
@@ -307,7 +308,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 est = ladder.estimate(level_spec, groups, fit_options, start)
                 # rows without a group label count as read, as fit counts them (the methods paragraph)
                 result = with_rows_read(with_missing_reading(ladder.assess(level_spec, groups, est, fit_options, group),
-                                                             loaded, missing_codes), loaded)
+                                                             analysed, missing_codes), loaded)
             if not result.converged:
                 why = next((p for p in result.problems if p.kind is not ProblemKind.SMALL_GROUP), None)
                 reason = (f" ({result.message}). {why.advice}" if why is not None else f" ({result.message})")

@@ -217,13 +217,27 @@ def test_word_figures_fit_on_the_page(shapes):
     from cfa_tool.reporting.docx_report import report_docx
     from cfa_tool.reporting.fit_document import fit_report
 
+    from docx.oxml.ns import qn
+
     for shape, groups in (("small", 1), ("groups", 2), ("60 items", 1), ("method factor", 1)):
         document = Document(io.BytesIO(report_docx(fit_report(shapes[shape]), 100)))
         pictures = document.inline_shapes
-        assert len(pictures) == groups
-        for picture in pictures:  # the width of the text area, unless that would run off the page's foot
-            assert picture.width <= Inches(6.5) + 1 and picture.height <= Inches(8) + 1
-            assert abs(picture.width - Inches(6.5)) <= 1 or abs(picture.height - Inches(8)) <= 1
+        # one figure per group; a drawing too large to print readably on one page goes on in strips, each under a
+        # caption 'Figure n (continued)'
+        captions = [p.text for p in document.paragraphs if p.text.startswith("Figure ")]
+        assert [c for c in captions if not c.endswith("(continued)")] == [f"Figure {k + 1}" for k in range(groups)]
+        assert len(pictures) == len(captions)
+        k, found = 0, []  # the section of each picture: a section ends at a paragraph that holds its properties
+        for child in document.element.body.iterchildren():
+            if child.tag == qn("w:p"):
+                found += [k] * len(child.findall(".//" + qn("wp:inline")))
+                k += child.find(f"{qn('w:pPr')}/{qn('w:sectPr')}") is not None
+        for picture, s in zip(pictures, found):  # the width of its page's text area, unless that would run off the
+            section = document.sections[s]      # page's foot (less an inch for the caption and note)
+            width = section.page_width - section.left_margin - section.right_margin
+            height = section.page_height - section.top_margin - section.bottom_margin - Inches(1)
+            assert picture.width <= width + 1 and picture.height <= height + 1
+            assert abs(picture.width - width) <= 1 or abs(picture.height - height) <= 1
     notes = [p.text for p in Document(io.BytesIO(report_docx(fit_report(shapes["method factor"]), 100))).paragraphs]
     assert any("grey ellipses: method factors" in text for text in notes)
 

@@ -28,7 +28,7 @@ def test_without_equal_intercepts_every_groups_means_are_zero():
     assert _means(result) == {"Grant-White": {False}, "Pasteur": {False}}
     assert [(g.label, g.data.n_obs) for g in result.groups] == [("Grant-White", 145), ("Pasteur", 156)]
     text = _flat(methods_paragraph(result))
-    assert "estimated in two groups defined by school (Grant-White, n = 145; Pasteur, n = 156) by" in text
+    assert 'estimated in two groups defined by school ("Grant-White", n = 145; Pasteur, n = 156) by' in text
     assert "The factor means were fixed at zero in every group." in text
 
 
@@ -37,7 +37,7 @@ def test_with_equal_intercepts_the_other_groups_means_are_estimated():
                           reference_group="Pasteur")
     assert _means(result) == {"Pasteur": {False}, "Grant-White": {True}}
     text = _flat(methods_paragraph(result))
-    assert "The factor means were fixed at zero in Pasteur and estimated in Grant-White." in text
+    assert 'The factor means were fixed at zero in Pasteur and estimated in "Grant-White".' in text
 
 
 def test_a_fit_of_one_group_says_nothing_of_factor_means():
@@ -88,3 +88,15 @@ def test_the_invariance_paragraph_says_rows_with_gaps_were_used_as_the_fit_does(
     phrase = ("every answer of every row was used, including rows with missing answers (each item answered in at "
               "least 98.3% of the rows)")
     assert phrase in _flat(methods_paragraph(fitted)) and phrase in _flat(invariance_paragraph(ladder, LEVELS))
+
+
+def test_a_fit_in_groups_without_equalities_says_none_were_imposed(hs_data):
+    # a reviewer reading only the paragraph must not take the groups' loadings for invariant ones
+    result = cfa_tool.fit(THREE_FACTORS, hs_data, group="school")
+    assert not result.description.invariant
+    text = " ".join(methods_paragraph(result).split())
+    assert ("No invariance constraints were imposed: the parameters were estimated separately in each group, with "
+            "the same pattern in every group.") in text
+    held = " ".join(methods_paragraph(cfa_tool.fit(THREE_FACTORS + "invariance metric\n", hs_data,
+                                                   group="school")).split())
+    assert "No invariance constraints" not in held and "Held equal across groups: loadings" in held

@@ -45,3 +45,18 @@ def test_the_comparison_says_it_too(hs_data):
     assert f"{without} of {len(data)} rows had no value in the group column (school) and were left out" in text
     assert "answered none of some model's variables" not in text
     assert any(f"{without} rows have no value in the group column 'school'" in n for n in comparison.notes)
+
+
+def test_the_invariance_paragraph_says_it_too(hs_data):
+    # the fit's sentence, shared: the ladder's models were fitted to the rows with a school only
+    from cfa_tool.reporting.paragraph import invariance_paragraph
+    from cfa_tool.workflows.invariance import LEVELS
+
+    data = _data(hs_data)
+    without = int(data["school"].isna().sum())
+    ladder = cfa_tool.invariance(THREE_FACTORS, data, "school")
+    assert all(s.result.data.without_group == without for s in ladder.steps)
+    assert ladder.steps[0].result.n_obs == len(data) - without  # counted by pandas above
+    text = " ".join(invariance_paragraph(ladder, LEVELS).split())
+    assert f"(N = {len(data) - without}; " in text
+    assert f"; {without} of {len(data)} rows had no value in the group column (school) and were left out)" in text

@@ -1,0 +1,94 @@
+"""The path diagram in the Word report prints its labels at a readable size: a drawing whose smallest text would
+print below MIN_FIGURE_TEXT points across a portrait page (a model of many items drawn wide) is set on a landscape
+page of its own, where it prints larger; a small drawing stays on the portrait page.  The page, the section and the
+picture's printed width are read back with python-docx (an independent reader of the format); the text sizes are
+those of the SVG's font-size attributes scaled by the printed width (1 pt = 1/72 inch)."""
+
+from __future__ import annotations
+
+import io
+import re
+
+import docx
+import pytest
+from docx.enum.section import WD_ORIENT
+from docx.oxml.ns import qn
+from docx.shared import Emu
+
+import cfa_tool
+from cfa_tool.reporting.docx_report import MIN_FIGURE_TEXT, report_docx
+from cfa_tool.reporting.fit_document import fit_report
+from cfa_tool.reporting.picture import png_converter
+from cfa_tool.resources import resource_dir
+from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+pytestmark = pytest.mark.skipif(png_converter() is None, reason="the Word figure needs rsvg-convert")
+
+
+def _figure(report) -> tuple[object, float]:
+    """(the orientation of the picture's section, its printed width in inches) of the first figure."""
+    document = docx.Document(io.BytesIO(report_docx(report, dpi=96)))
+    k = 0
+    for child in document.element.body.iterchildren():
+        if child.tag != qn("w:p"):
+            continue
+        if child.findall(".//" + qn("wp:inline")):
+            break
+        if child.find(f"{qn('w:pPr')}/{qn('w:sectPr')}") is not None:
+            k += 1
+    return document.sections[k].orientation, Emu(document.inline_shapes[0].width).inches
+
+
+def _smallest_points(svg: str, inches: float) -> float:
+    width = float(re.search(r'<svg[^>]*?\swidth="([0-9.]+)"', svg).group(1))
+    return min(float(s) for s in re.findall(r'font-size="([0-9.]+)"', svg)) * inches * 72 / width
+
+
+def test_a_wide_diagram_goes_on_a_landscape_page():
+    # the rider survey's twelve items in three factors: one row of items about 940 units wide
+    report = fit_report(cfa_tool.fit(resource_dir("models") / "rider_three_factors.cfa",
+                                     resource_dir("demo") / "rider_survey.csv"))
+    svg = report.figures[0].svg
+    orientation, inches = _figure(report)
+    assert orientation == WD_ORIENT.LANDSCAPE
+    portrait = _smallest_points(svg, 6.0)  # the text width of the default page: letter, 1.25 in side margins
+    assert portrait < MIN_FIGURE_TEXT and _smallest_points(svg, inches) > 1.1 * portrait
+
+
+def test_a_small_diagram_stays_on_the_portrait_page():
+    report = fit_report(cfa_tool.fit(THREE_FACTORS, holzinger_swineford()))  # nine items
+    orientation, inches = _figure(report)
+    assert orientation == WD_ORIENT.PORTRAIT and _smallest_points(report.figures[0].svg, inches) >= MIN_FIGURE_TEXT
+
+
+def test_a_diagram_of_thirty_items_goes_on_in_strips(tmp_path):
+    # thirty items in five factors of six (simulated with a fixed seed): drawn in three bands of factors, too small
+    # to read across one page (about 4.5 pt), so the Word figure is cut between the bands, one strip a page
+    import numpy as np
+    import pandas as pd
+
+    from cfa_tool.reporting.picture import svg_strips
+
+    rng = np.random.default_rng(7)
+    scores = rng.multivariate_normal(np.zeros(5), 0.4 * np.ones((5, 5)) + 0.6 * np.eye(5), size=600)
+    data = pd.DataFrame({f"item{j + 1:02d}": 0.7 * scores[:, j // 6] + 0.6 * rng.standard_normal(600) + 3
+                         for j in range(30)})
+    model = "".join(f"factor f{f + 1}: " + ", ".join(f"item{j + 1:02d}" for j in range(6 * f, 6 * f + 6)) + "\n"
+                    for f in range(5))
+    report = fit_report(cfa_tool.fit(model, data))
+    svg = report.figures[0].svg
+    width, height = (float(re.search(rf'<svg[^>]*?\s{a}="([0-9.]+)"', svg).group(1)) for a in ("width", "height"))
+    breaks = [float(b) for b in re.search(r'data-breaks="([0-9. ]+)"', svg).group(1).split()]
+    assert len(breaks) == 2  # three bands
+    assert _smallest_points(svg, min(6.0, 8.0 * width / height)) < MIN_FIGURE_TEXT  # whole, on the portrait page
+    document = docx.Document(io.BytesIO(report_docx(report, dpi=96)))
+    pictures = document.inline_shapes
+    assert len(pictures) == 2
+    captions = [p.text for p in document.paragraphs if p.text.startswith("Figure ")]
+    assert captions == ["Figure 1", "Figure 1 (continued)"]
+    strips = svg_strips(svg, 5.5 * width / 8.5)  # landscape: 8.5 by 5.5 inches for the drawing
+    tops = [float(re.search(r'viewBox="0 ([0-9.]+) ', s).group(1)) for s in strips]
+    assert len(strips) == 2 and tops[0] == 0 and tops[1] in breaks  # cut where nothing is drawn
+    for picture in pictures:  # each strip across the landscape page, its labels larger than the whole drawing's
+        assert abs(Emu(picture.width).inches - 8.5) < 0.01 or Emu(picture.height).inches <= 5.5 + 0.01
+        assert _smallest_points(svg, Emu(picture.width).inches) > 1.1 * _smallest_points(svg, 6.0)
