@@ -662,7 +662,7 @@ def with_design(result: FitResult, design) -> FitResult:
         problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), caution,
                              "read the p-values with caution, or fit without --cluster and say that rows are nested in "
                              "clusters."),)
-    uneven = design.weight_caution(free)
+    uneven = design.weight_caution()
     if uneven:
         problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,
                              "check the weights (a few rows may carry most of them), trim extreme weights by the survey's "
