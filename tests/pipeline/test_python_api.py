@@ -52,3 +52,28 @@ def test_cov_params_and_conf_int(hs_data):
     row = frame[(frame["kind"] == "loading") & (frame["variables"] == "visual, x2")].iloc[0]
     assert row["upper"] == pytest.approx(x2.estimate + stats.norm.ppf(0.95) * x2.se, rel=1e-10)
     assert len(frame) == sum(r.free for r in result.estimates)
+
+
+@pytest.mark.parametrize("test", ["normal", "robust"])
+def test_fit_to_read_gives_the_figures_the_report_tells_to_read(test, hs_data):
+    # a new-user trial: result.fit.cfi (the README's way) gave the unadjusted CFI every report marks "for reference
+    # only" beside a robust test.  fit_to_read gives the figures of the report's rows that carry a guide value, the
+    # same in the JSON; fit keeps the normal-theory ones, the report's rows marked "for reference only"
+    from cfa_tool.reporting.tables import fit_rows
+
+    result = cfa_tool.fit(THREE, hs_data, test=test)
+    values = {v[0]: v for row in fit_rows(result) for v in row.values}
+    guides = {v[0]: row.guide for row in fit_rows(result) for v in row.values}
+    read = result.fit_to_read
+    robust = "Robust " if test == "robust" else ""
+    assert read.cfi == values[f"{robust}CFI"][1] and read.tli == values[f"{robust}TLI"][1]
+    assert read.rmsea == values[f"{robust}RMSEA"][1] and read.rmsea_ci90 == tuple(values[f"{robust}RMSEA"][4:6])
+    assert guides[f"{robust}CFI"] == ">= .95" and read.srmr == values["SRMR"][1]
+    if test == "robust":
+        assert read.test == "satorra-bentler" and read.cfi != result.fit.cfi  # the normal-theory CFI is not the one
+        [scaled] = [v for k, v in values.items() if k.startswith("Scaled chi-square")]
+        assert (read.chi_square, read.df, read.p_value) == tuple(scaled[1:4])
+        assert guides["CFI (unadjusted)"] == "for reference only" and values["CFI (unadjusted)"][1] == result.fit.cfi
+    else:
+        assert read.test == "normal" and read.chi_square == values["Chi-square"][1]
+    assert result.to_dict()["fit_to_read"] == read.to_dict() and json.dumps(read.to_dict(), allow_nan=False)
