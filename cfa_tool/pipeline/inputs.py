@@ -432,11 +432,12 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None):
 SAME_ANSWER_ROWS_SHOWN = 10  # rows a caution about same-answer rows names before 'and N more'
 
 
-def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict) -> tuple:
+def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only: bool = False) -> tuple:
     """A caution naming the rows of ``frame`` (the rows analysed) that gave one answer to every item, the items of
     the model's 'reversed' statement included (data.same_answers: careless responding, Johnson 2005; Curran 2016),
     by data-row number and id (``ids``: data-row number -> id); () when the model declares no reversed items or no
-    row did.  The rows stay in the analysis."""
+    row did.  The rows stay in the analysis (``scored_only``: rows scored with an earlier fit, which they did not
+    enter: they are scored like every row)."""
     if not spec.reversed:
         return ()
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
@@ -463,10 +464,13 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict) -> tuple:
                     f"{n} {'row' if one else 'rows'} gave {gave} to every item {'it' if one else 'they'} answered, the "
                     f"{found.reversed_items} reverse-worded items included ({rows}): agreeing alike with an item and "
                     f"its reversal suggests careless responding (a long string of identical answers; Johnson 2005, "
-                    f"Curran 2016). {'It is' if one else 'They are'} kept in this analysis.",
+                    f"Curran 2016). " + (f"{'It is' if one else 'They are'} scored like every row." if scored_only else
+                                         f"{'It is' if one else 'They are'} kept in this analysis."),
                     f"check {'this row' if one else 'these rows'} in the data; if {'it was' if one else 'they were'} "
-                    f"not answered with care, fit again without {'it' if one else 'them'} (a --keep filter on an id "
-                    f"column, or deleting {'it' if one else 'them'} from a copy of the file) and compare the results."),)
+                    f"not answered with care, " + (f"leave {'its' if one else 'their'} scores out of what follows." if
+                                                   scored_only else
+                    f"fit again without {'it' if one else 'them'} (a --keep filter on an id column, or deleting "
+                    f"{'it' if one else 'them'} from a copy of the file) and compare the results.")),)
 
 
 def with_same_answer_rows(result, frame: pd.DataFrame, spec: Spec, ids: dict):

@@ -8,6 +8,7 @@ from cfa_tool.reporting.remedies import Remedy
 from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.reporting.numbers import num, unit
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
+from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, LINEAR_METHODS, ScoreMethod
 
 SCORES_CAUTION = (
@@ -257,8 +258,6 @@ def score_tables(result) -> list[ReportTable]:
     return out
 
 
-#: how the fit's own notes are introduced when the scores are of other data or from an earlier fit
-ABOUT_THE_FIT = "About the fit (not the scored data): "
 
 
 def warnings(result) -> list[str]:

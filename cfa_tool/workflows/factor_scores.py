@@ -39,6 +39,10 @@ class RowLeftOut(Enum):
 #: the row of a summary-statistics file that gives what a fit lacks (data.summary_stats.NotGiven)
 _SUMMARY_ROW = {NotGiven.MEANS: "mean", NotGiven.STANDARD_DEVIATIONS: "sd"}
 
+#: how the earlier fit's own cautions and notes are introduced when other data are scored with it (said of the fit's
+#: rows, not of the scored file's)
+ABOUT_THE_FIT = "About the fit (not the scored data): "
+
 #: the header of the id column when the file's row names name the rows
 ROW_NAME_HEADER = "row_name"
 
@@ -425,7 +429,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                       keep) -> ScoreResult:
     """Rows of ``data`` scored with the given models (one per group of the earlier fit ``result``)."""
     from cfa_tool.pipeline import inputs as api
-    from cfa_tool.data.row_ids import duplicate_note, row_ids
+    from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 
     given = api.missing_codes_option(missing_codes)
     carried = tuple(c for c in result.data.missing_codes if c not in given)  # the earlier fit's, read so here too
@@ -444,7 +448,12 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes.insert(0, f"{'The value' if one else 'The values'} {', '.join(f'{c:g}' for c in carried)} in {source} "
                         f"{'was' if one else 'were'} read as no answer, as the earlier fit read {'it' if one else 'them'} "
                         f"(its missing-value codes)")
-    result = api.with_odd_values(result, api.analysed_odd_values(loaded, spec, group), group)
+    # the cautions about the scored file computed on it, first; the earlier fit's own said to be about the fit
+    own = api.odd_value_problems(api.analysed_odd_values(loaded, spec, group), group) + api.same_answer_problems(
+        api._labelled(frame, group) if group is not None else frame, spec, ids_by_row_number(ids, read_frame),
+        scored_only=True)
+    result = replace(result, problems=own + tuple(replace(p, explanation=ABOUT_THE_FIT + p.explanation)
+                                                  for p in result.problems))
     from cfa_tool.scoring.model import OrdinalScoringModel
 
     ordinal = isinstance(models[0], OrdinalScoringModel)
