@@ -384,9 +384,16 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None) -> tuple:
 
     marked = non_answer_caution(loaded.non_answers, loaded.source,
                                 loaded.items.names if loaded.items is not None else None)
+    # a code already named as labelled beyond the scale of the same items is not named again as a missing-value code
+    from cfa_tool.data.non_answers import BeyondScale
+    from cfa_tool.data.odd_values import OddKind
+
+    labelled = {(c.value, column) for c in loaded.cautions if isinstance(c, BeyondScale) for column in c.columns}
+    odd = tuple(o for o in loaded.odd_values if not (o.kind is OddKind.MISSING_CODE and all(
+        (v, column) in labelled for v, column in zip(o.values, o.columns))))
     return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
         Problem(ProblemKind.VALUES_NOT_ANSWERS, (), None, odd.caution(loaded.source), odd.advice())
-        for odd in loaded.cautions + loaded.odd_values)
+        for odd in loaded.cautions + odd)
 
 
 def group_case_problems(frame: pd.DataFrame, group: str) -> tuple:

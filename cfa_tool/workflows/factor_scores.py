@@ -452,8 +452,10 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     own = api.odd_value_problems(api.analysed_odd_values(loaded, spec, group), group) + api.same_answer_problems(
         api._labelled(frame, group) if group is not None else frame, spec, ids_by_row_number(ids, read_frame),
         scored_only=True)
+    # (the fit's own file scored again: its findings of the same kinds are the scored file's, said once)
+    again = {p.kind for p in own} if (source, len(read_frame)) == (result.data.source, result.data.rows_read) else set()
     result = replace(result, problems=own + tuple(replace(p, explanation=ABOUT_THE_FIT + p.explanation)
-                                                  for p in result.problems))
+                                                  for p in result.problems if p not in own and p.kind not in again))
     from cfa_tool.scoring.model import OrdinalScoringModel
 
     ordinal = isinstance(models[0], OrdinalScoringModel)
