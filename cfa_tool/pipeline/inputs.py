@@ -26,6 +26,7 @@ from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_desi
                                          refuse_shared_clusters)
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
+from cfa_tool.options import option_in_both
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, printable
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
@@ -33,6 +34,7 @@ from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import ADJUSTED_TEST, FitTest, MissingData, WeightKind, Weighting
 from cfa_tool.pipeline.results import CheckResult, FitResult
+from cfa_tool.suggest import close_names
 
 
 def load_spec(model: str | os.PathLike | Spec) -> Spec:
@@ -476,8 +478,9 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
                     f"check {'this row' if one else 'these rows'} in the data; if {'it was' if one else 'they were'} "
                     f"not answered with care, " + (f"leave {'its' if one else 'their'} scores out of what follows." if
                                                    scored_only else
-                    f"fit again without {'it' if one else 'them'} (a --keep filter on an id column, or deleting "
-                    f"{'it' if one else 'them'} from a copy of the file) and compare the results.")),)
+                    f"fit again without {'it' if one else 'them'} (a row filter on an id column, "
+                    f"{option_in_both('--keep', 'keep=[...]')}; or deleting {'it' if one else 'them'} from a copy of the "
+                    f"file) and compare the results.")),)
 
 
 def with_same_answer_rows(result, frame: pd.DataFrame, spec: Spec, ids: dict):
@@ -935,11 +938,28 @@ def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):
     return summary_moments(names, values, n_obs, matrix, sds, means, divisor, "<covariance matrix>")
 
 
+#: keywords a researcher may reach for that name no option, and what asks for the same
+KEYWORDS_BY_OTHER_NAMES = {"robust": "a robust test is asked for with test='robust' (or test='satorra-bentler' or "
+                                     "test='yuan-bentler')"}
+
+
 def make_options(options: dict) -> FitOptions:
-    try:
-        return FitOptions(**options)
-    except TypeError as exc:
-        raise OptionError(f"unknown option: {exc}") from None
+    """The fit options of the keywords a public function passed on (``options``); an unknown keyword is an error
+    naming it and the nearest keyword of that function or of the fit options (difflib), or what asks for the same
+    (:data:`KEYWORDS_BY_OTHER_NAMES`)."""
+    from dataclasses import fields
+    import inspect
+
+    known = [f.name for f in fields(FitOptions)]
+    unknown = next((k for k in options if k not in known), None)
+    if unknown is not None:
+        caller = inspect.currentframe().f_back.f_code  # the public function's own keywords are near names too
+        own = caller.co_varnames[:caller.co_argcount + caller.co_kwonlyargcount]
+        near = close_names(str(unknown), [*own, *known])
+        hint = (KEYWORDS_BY_OTHER_NAMES.get(unknown)
+                or (f"did you mean {near[0]}=...?" if near else f"the fit options are {', '.join(known)}"))
+        raise OptionError(f"unknown keyword '{printable(str(unknown))}': {hint}")
+    return FitOptions(**options)
 
 
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,

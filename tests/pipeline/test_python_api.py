@@ -77,3 +77,27 @@ def test_fit_to_read_gives_the_figures_the_report_tells_to_read(test, hs_data):
     else:
         assert read.test == "normal" and read.chi_square == values["Chi-square"][1]
     assert result.to_dict()["fit_to_read"] == read.to_dict() and json.dumps(read.to_dict(), allow_nan=False)
+
+
+@pytest.mark.parametrize("keyword, said", [
+    ("robust", "unknown keyword 'robust': a robust test is asked for with test='robust'"),
+    ("ordinl", "unknown keyword 'ordinl': did you mean ordinal=...?"),  # a keyword of fit itself
+    ("mi_treshold", "unknown keyword 'mi_treshold': did you mean mi_threshold=...?"),  # a fit option
+])
+def test_an_unknown_keyword_is_named_with_the_nearest_one(keyword, said, hs_data):
+    # a new-user trial: robust=True gave "unknown option: FitOptions.__init__() got an unexpected keyword argument"
+    from cfa_tool.errors import OptionError
+
+    with pytest.raises(OptionError) as caught:
+        cfa_tool.fit(THREE, hs_data, **{keyword: True})
+    assert str(caught.value).startswith(said) and "__init__" not in str(caught.value)
+    with pytest.raises(OptionError, match="did you mean partial=...?"):  # another function's own keywords
+        cfa_tool.invariance(THREE, hs_data, "school", partal="auto")
+
+
+def test_advice_names_the_python_keyword_beside_the_option(hs_data):
+    # a new-user trial: summary() read from Python advised '--ordinal all' and '--keep' only
+    few = hs_data.assign(**{x: hs_data[x].round().clip(3, 6) for x in ("x1", "x2", "x3")})
+    text = " ".join(cfa_tool.fit(THREE, few).summary().split())
+    assert "--ordinal x1,x2,x3; from Python, ordinal=['x1', 'x2', 'x3']" in text
+    assert "(--robust; from Python, test='robust')" in text
