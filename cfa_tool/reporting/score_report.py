@@ -140,8 +140,8 @@ def precision_table(result, k: int) -> ReportTable | None:
               f"deviation: {sds}). ")
     note = (first + f"SE: the typical distance of a score from the person's factor value; 95% band: "
             f"±1.96 SE about a score (normal approximation); real difference: the smallest difference between two "
-            f"people's scores that exceeds chance at the 5% level, 1.96 × √2 × SE (Gulliksen 1950; recalled from "
-            f"memory, common practice). SDs: divided by the factor's standard deviation." + _one_item_sentence(result.fit))
+            f"people's scores that exceeds chance at the 5% level, 1.96 × √2 × SE (Gulliksen 1950). SDs: divided by "
+            f"the factor's standard deviation." + _one_item_sentence(result.fit))  # (Gulliksen: scoring.quality)
     return _table(f"score_precision_{k}", "How precise is one person's score?" + _where(q), cols, rows, note,
                   values=([c for c, _ in cols], values))
 
