@@ -103,6 +103,31 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
     return id_name, columns
 
 
+#: output column that marks the rows that gave one answer to every item they answered, reverse-worded ones included
+#: (data.same_answers: 1, else 0; empty for rows not scored), written when the model declares reversed items
+SAME_ANSWER_COLUMN = "same_answer_to_every_item"
+
+
+def _with_same_answer_column(columns: dict, id_name, spec, items, rows: np.ndarray, at: np.ndarray, n: int) -> dict:
+    """``columns`` with :data:`SAME_ANSWER_COLUMN` last (``rows``: the answers of the rows read, at the places ``at``
+    of the ``n`` output rows); unchanged without a 'reversed' statement, where one answer throughout contradicts
+    nothing the model knows."""
+    from cfa_tool.data.same_answers import same_answer_rows
+
+    turned = np.array([x in spec.reverse_keyed for x in items], dtype=bool)
+    if not spec.reversed or not turned.any() or turned.all():
+        return columns
+    if id_name == SAME_ANSWER_COLUMN:
+        raise OptionError(f"the id column '{printable(id_name)}' has the name of a column the output holds; "
+                          f"rename that column in the data, or name the rows by another column")
+    found = same_answer_rows(rows, np.arange(len(rows)), turned)
+    flags = np.full(n, -1)
+    flags[at] = 0
+    if found is not None:
+        flags[at[list(found.rows)]] = 1
+    return {**columns, SAME_ANSWER_COLUMN: pd.array([None if v < 0 else int(v) for v in flags], dtype="Int64")}
+
+
 def answered_column(factor: str) -> str:
     """Output column of the number of a factor's items a row answered: e.g. 'visual_items_answered'."""
     return f"{factor}_items_answered"
@@ -337,6 +362,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                position.loc[kept].to_numpy(), len(read_index))
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors,
                                       bool(standard_errors or ordinal_items), answered)
+    columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
+                                       len(read_index))
     table = pd.DataFrame(columns)
     if id_name is not None and id_name in list(table.columns)[1:]:
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
@@ -496,6 +523,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     with_errors = bool(standard_errors or ordinal)  # a posterior mean always comes with its posterior SD
     answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors, answered)
+    columns = _with_same_answer_column(columns, id_name, spec, base.items, rows, position.loc[frame.index].to_numpy(), n)
     warnings = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 

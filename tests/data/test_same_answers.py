@@ -102,3 +102,14 @@ def test_scores_of_other_data_name_that_files_rows_and_say_which_are_the_fits(sa
     assert "data rows 7 (P007), 41 (P041)" in same[1].explanation
     assert all(p.explanation.startswith(ABOUT_THE_FIT) for p in scored.fit.problems[1:])
     assert not np.isnan(scored.table.iloc[2, 1])  # scored like every row
+    # the scores file marks the row (a plain column, 1 or 0), the scored file's own rows only
+    assert scored.table["same_answer_to_every_item"].tolist() == [1 if k == 2 else 0 for k in range(50)]
+
+
+def test_the_scores_file_marks_the_same_answer_rows():
+    frame = _planted(_answers())
+    table = cfa_tool.scores(MODEL + REVERSED, frame, id_column="respondent").table
+    assert table.columns[-1] == "same_answer_to_every_item"
+    assert table.loc[table["same_answer_to_every_item"] == 1, "respondent"].tolist() == ["P007", "P041"]
+    # without a 'reversed' statement no row is judged, and the file has no such column
+    assert "same_answer_to_every_item" not in cfa_tool.scores(MODEL, frame).table.columns
