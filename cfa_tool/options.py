@@ -118,3 +118,9 @@ def group_column(value: object) -> str | None:
     if value is None or isinstance(value, str):
         return value
     raise OptionError(f"the group column must be given by its name (text), not {type(value).__name__}")
+
+
+def option_in_both(flag: str, keyword: str) -> str:
+    """An option as advice names it, for a reader of the command line and of Python alike (a report reads the
+    same whichever made it): "--ordinal all; from Python, ordinal='all'"."""
+    return f"{flag}; from Python, {keyword}"

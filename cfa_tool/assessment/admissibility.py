@@ -214,7 +214,7 @@ class Problem:
             K.ON_BOUND: f"{', '.join(label_words(label, quoted=quoted) for label in self.parameters)} held at a bound",
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
-            K.SMALL_EFFECTIVE_SAMPLE: f"an effective sample size of only {v} under the weights",
+            K.SMALL_EFFECTIVE_SAMPLE: f"very uneven weights (Kish's effective sample size {v})",
             K.SMALL_SAMPLE: f"fewer rows ({v.split('.')[0]}) than free parameters of the model",
             K.GROUP_LABELS_BY_CASE: "group labels that differ only in upper and lower case, analysed as different "
                                     "groups",

@@ -31,7 +31,9 @@ from cfa_tool.numerics.linalg import log_det_pd, spd_inverse
 
 
 @dataclass(frozen=True)
-class FitIndices:
+class IndicesOfOneTest:
+    """The chi-square of one test and the indices built on it, with SRMR: the fields every set of fit figures has."""
+
     chi_square: float
     df: int
     p_value: float
@@ -40,6 +42,14 @@ class FitIndices:
     rmsea: float
     rmsea_ci90: tuple[float, float]
     srmr: float
+
+
+@dataclass(frozen=True)
+class FitIndices(IndicesOfOneTest):
+    """The normal-theory fit indices (the unadjusted chi-square and what is built on it).  With a robust, ordinal or
+    design-based test (a fit's ``robust``) these are the figures every report marks "for reference only"; the ones to
+    read are a fit's ``fit_to_read`` (:class:`IndicesToRead`)."""
+
     baseline_chi_square: float
     baseline_df: int
     n_free_parameters: int
@@ -55,6 +65,27 @@ class FitIndices:
         order = ("chi_square", "df", "p_value", "cfi", "tli", "rmsea", "rmsea_ci90", "rmsea_p_close", "srmr",
                  "log_likelihood", "aic", "bic", "sabic", "baseline_chi_square", "baseline_df", "n_free_parameters")
         return {k: d[k] for k in order}
+
+
+@dataclass(frozen=True)
+class IndicesToRead(IndicesOfOneTest):
+    """The fit figures a report tells researchers to read: those of the robust (scaled or adjusted) test when the fit
+    has one, the normal-theory ones otherwise; SRMR is the same in both.  ``test`` is the test's option word
+    ('normal', 'satorra-bentler', 'yuan-bentler', 'scale-shifted')."""
+
+    test: str
+
+    @classmethod
+    def of(cls, fit: FitIndices, robust=None) -> "IndicesToRead":
+        """From the normal-theory indices and the robust fit (inference.robust.RobustFit, or None)."""
+        if robust is None:
+            return cls(fit.chi_square, fit.df, fit.p_value, fit.cfi, fit.tli, fit.rmsea, fit.rmsea_ci90, fit.srmr,
+                       "normal")
+        return cls(robust.chi_square_scaled, robust.df, robust.p_value_scaled, robust.cfi_robust, robust.tli_robust,
+                   robust.rmsea_robust, robust.rmsea_robust_ci90, fit.srmr, robust.test.value)
+
+    def to_dict(self) -> dict:
+        return {"test": self.test, **vars(self), "rmsea_ci90": list(self.rmsea_ci90)}
 
 
 def chi_square_p(chi_square: float, df: int) -> float:

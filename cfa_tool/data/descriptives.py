@@ -8,6 +8,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.language.names import written_name
+from cfa_tool.options import option_in_both
 
 
 @dataclass(frozen=True)
@@ -132,4 +133,5 @@ def few_category_note(values: np.ndarray, names: tuple[str, ...]) -> str | None:
     return (f"{len(few)} of the {len(names)} items ({listed}) have at most {FEW_CATEGORIES} answer categories and are "
             f"analysed here as continuous by maximum likelihood; with so few categories loadings tend to come out "
             f"too small and the fit to be misjudged, and analysing the answers as ordered categories is usually "
-            f"preferred (Rhemtulla, Brosseau-Liard & Savalei 2012): --ordinal {which}")
+            f"preferred (Rhemtulla, Brosseau-Liard & Savalei 2012): "
+            f"{option_in_both(f'--ordinal {which}', 'ordinal=' + repr('all' if which == 'all' else list(few)))}")

@@ -38,7 +38,7 @@ NON_ANSWER_PHRASES = frozenset({
     "not sure", "unsure", "no opinion", "can t say", "cannot say", "can not say", "can t tell", "cannot tell",
     "not asked", "not applicable", "inapplicable", "does not apply", "does not apply to me", "doesn t apply",
     "doesn t apply to me", "na not applicable", "n a", "na", "legitimate skip",
-    "no answer", "not answered", "no response", "non response", "nonresponse", "missing", "missing value",
+    "no answer", "not answered", "no answer given", "did not answer", "didn t answer", "no response", "non response", "nonresponse", "missing", "missing value",
     "system missing", "skipped", "skip", "valid skip", "prefer not to say", "prefer not to answer",
     "rather not say", "not stated", "no data", "question not asked",
 })
@@ -176,23 +176,31 @@ def unlabelled_extra_codes(column: np.ndarray, labels: dict) -> list[tuple[float
 
 @dataclass(frozen=True)
 class BeyondScale:
-    """A labelled code beyond an item's answer scale (:func:`unlabelled_extra_codes`), analysed as an answer but
-    named first: ``rows`` are its cells' data-row numbers."""
+    """A labelled code beyond the answer scale of one or more items (:func:`unlabelled_extra_codes`), analysed as an
+    answer but named first, once for all the items that hold it with the same label and scale: ``rows`` are the
+    data-row numbers of its cells in each of ``columns``."""
 
-    column: str
+    columns: tuple[str, ...]
     value: float
     label: str
-    rows: tuple[int, ...]
-    scale: tuple[float, float]  # the lowest and highest of the item's other labelled codes
+    rows: tuple[tuple[int, ...], ...]  # one tuple per column
+    scale: tuple[float, float]  # the lowest and highest of the items' other labelled codes
 
     def caution(self, source: str) -> str:
         name = source.replace("\\", "/").rsplit("/", 1)[-1]
-        shown = ", ".join(str(r) for r in self.rows[:3]) + (f" and {len(self.rows) - 3} more" if len(self.rows) > 3 else "")
-        cells = len(self.rows)
-        return (f"The item {printable(self.column)} of {name} holds the code {self.value:g} labelled "
-                f"'{printable(self.label)}' ({cells} cell{'s' if cells != 1 else ''}: data "
-                f"row{'s' if cells != 1 else ''} {shown}), beyond its other labelled answers "
-                f"({self.scale[0]:g} to {self.scale[1]:g}), analysed as an answer: a code of no answer?")
+        cells = sum(len(r) for r in self.rows)
+        if len(self.columns) == 1:
+            (rows,) = self.rows
+            shown = ", ".join(str(r) for r in rows[:3]) + (f" and {len(rows) - 3} more" if len(rows) > 3 else "")
+            where = (f"The item {printable(self.columns[0])} of {name} holds the code {self.value:g} labelled "
+                     f"'{printable(self.label)}' ({cells} cell{'s' if cells != 1 else ''}: data "
+                     f"row{'s' if cells != 1 else ''} {shown}), beyond its other labelled answers")
+        else:
+            each = [f"{printable(c)} {len(r)}" for c, r in zip(self.columns, self.rows)]
+            listed = ", ".join(each[:SHOWN]) + (f" and {len(each) - SHOWN} more items" if len(each) > SHOWN else "")
+            where = (f"{len(self.columns)} items of {name} hold the code {self.value:g} labelled "
+                     f"'{printable(self.label)}' ({cells} cells: {listed}), beyond their other labelled answers")
+        return f"{where} ({self.scale[0]:g} to {self.scale[1]:g}), analysed as an answer: a code of no answer?"
 
     def advice(self) -> str:
         return (f"If {self.value:g} '{printable(self.label)}' is not an answer on the scale, give --missing-codes "
@@ -200,9 +208,10 @@ class BeyondScale:
 
 
 def beyond_scale(frame: pd.DataFrame, names, value_labels: dict, rows: np.ndarray) -> tuple[BeyondScale, ...]:
-    """The labelled codes beyond the answer scales of the item columns ``names`` (:func:`unlabelled_extra_codes`);
-    ``rows``: the data-row numbers of ``frame``'s rows."""
-    found = []
+    """The labelled codes beyond the answer scales of the item columns ``names`` (:func:`unlabelled_extra_codes`),
+    one for each code, label and scale, naming every item that holds it; ``rows``: the data-row numbers of
+    ``frame``'s rows."""
+    found: dict[tuple, list] = {}
     for column in names:
         labels = value_labels.get(column)
         if not labels or column not in frame.columns or not pd.api.types.is_numeric_dtype(frame[column]):
@@ -211,9 +220,10 @@ def beyond_scale(frame: pd.DataFrame, names, value_labels: dict, rows: np.ndarra
         for code, text in unlabelled_extra_codes(values, labels):
             scale = sorted(float(k) for k, v in labels.items()
                            if isinstance(k, (int, float)) and float(k) != code and not says_no_answer(v, True))
-            found.append(BeyondScale(column, code, text, tuple(int(r) for r in rows[values == code]),
-                                     (scale[0], scale[-1])))
-    return tuple(found)
+            found.setdefault((code, text, scale[0], scale[-1]), []).append(
+                (column, tuple(int(r) for r in rows[values == code])))
+    return tuple(BeyondScale(tuple(c for c, _ in held), code, text, tuple(r for _, r in held), (low, high))
+                 for (code, text, low, high), held in found.items())
 
 
 def declared_missing(frame: pd.DataFrame, ranges: dict, value_labels: dict) -> tuple[pd.DataFrame, tuple[NonAnswer, ...]]:

@@ -242,16 +242,20 @@ class SampleDesign:
             parts.append(f"strata ({c.strata}; {self.strata})")
         return "design: " + ", ".join(parts)
 
-    def weight_caution(self, free_parameters: int) -> str | None:
-        """Why estimates and tests are in doubt when the weights are so uneven that Kish's effective sample size
-        (Kish 1965) is small for the free parameters (None otherwise)."""
+    def weight_caution(self) -> str | None:
+        """Why estimates and tests lean on few rows when the sampling weights are uneven: Kish's effective sample size
+        (sum w)^2 / sum w^2 (Kish 1965) below :data:`UNEVEN_WEIGHTS_SHARE` of the rows, i.e. a design effect of the
+        weighting, 1 + CV^2 of the weights (Kish 1992), above 2 (None otherwise).  How many rows a fit has for its
+        parameters is another rule, the same with and without weights (assessment.admissibility)."""
         if (self.columns.weights is None or self.columns.kind is not WeightKind.SAMPLING or self.effective_n is None
-                or self.effective_n >= ROWS_PER_PARAMETER * free_parameters):
+                or not self.rows or self.effective_n >= UNEVEN_WEIGHTS_SHARE * self.rows):
             return None
-        return (f"The weights in '{self.columns.weights}' are so uneven that the {self.rows} rows count as about "
-                f"{self.effective_n:.1f} (Kish's effective sample size) for {free_parameters} free parameters, fewer "
-                f"than {ROWS_PER_PARAMETER} per parameter (common practice): the estimates rest on a few heavily weighted "
-                f"rows, and the sandwich standard errors and scaled test mean little.")
+        share = self.effective_n / self.rows
+        return (f"The weights in '{self.columns.weights}' are very uneven: the {self.rows} rows count as about "
+                f"{self.effective_n:.1f} (Kish's effective sample size, {share:.0%} of the rows; below half of them is "
+                f"taken as very uneven, a rule of thumb of survey practice, not a law), so the estimates rest mostly "
+                f"on the heavily weighted rows and their standard errors are as large as those of a sample of about "
+                f"{self.effective_n:.0f} rows.")
 
     def caution(self, free_parameters: int) -> str | None:
         """Why cluster-robust standard errors are in doubt with this few clusters (None with enough of them): too
@@ -269,9 +273,10 @@ class SampleDesign:
 
 #: strata with a single unit named in the methods paragraph and the caution (the rest counted)
 LONE_STRATA_NAMED = 5
-#: fewer effective rows per free parameter than this under sampling weights: a caution (at least 5 cases per
-#: free parameter, Bentler & Chou 1987; common practice, a rule of thumb)
-ROWS_PER_PARAMETER = 5
+#: Kish's effective sample size below this share of the rows (a design effect of the weighting, n / n_eff = 1 + CV^2 of
+#: the weights (Kish 1992), above 2): weights so uneven that a caution says so (a rule of thumb of survey practice,
+#: recalled from memory, not from a source checked here)
+UNEVEN_WEIGHTS_SHARE = 0.5
 
 
 def design_columns(weights: str | None = None, cluster: str | None = None, strata: str | None = None,

@@ -27,6 +27,7 @@ from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_desi
                                          refuse_shared_clusters)
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
+from cfa_tool.options import option_in_both
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, printable
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
@@ -34,6 +35,7 @@ from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import ADJUSTED_TEST, FitTest, MissingData, WeightKind, Weighting
 from cfa_tool.pipeline.results import CheckResult, FitResult
+from cfa_tool.suggest import close_names
 
 
 def load_spec(model: str | os.PathLike | Spec) -> Spec:
@@ -419,9 +421,16 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None) -> tuple:
 
     marked = non_answer_caution(loaded.non_answers, loaded.source,
                                 loaded.items.names if loaded.items is not None else None)
+    # a code already named as labelled beyond the scale of the same items is not named again as a missing-value code
+    from cfa_tool.data.non_answers import BeyondScale
+    from cfa_tool.data.odd_values import OddKind
+
+    labelled = {(c.value, column) for c in loaded.cautions if isinstance(c, BeyondScale) for column in c.columns}
+    odd = tuple(o for o in loaded.odd_values if not (o.kind is OddKind.MISSING_CODE and all(
+        (v, column) in labelled for v, column in zip(o.values, o.columns))))
     return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
         Problem(ProblemKind.VALUES_NOT_ANSWERS, (), None, odd.caution(loaded.source), odd.advice())
-        for odd in loaded.cautions + loaded.odd_values)
+        for odd in loaded.cautions + odd)
 
 
 def group_case_problems(frame: pd.DataFrame, group: str) -> tuple:
@@ -467,11 +476,12 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None):
 SAME_ANSWER_ROWS_SHOWN = 10  # rows a caution about same-answer rows names before 'and N more'
 
 
-def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict) -> tuple:
+def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only: bool = False) -> tuple:
     """A caution naming the rows of ``frame`` (the rows analysed) that gave one answer to every item, the items of
     the model's 'reversed' statement included (data.same_answers: careless responding, Johnson 2005; Curran 2016),
     by data-row number and id (``ids``: data-row number -> id); () when the model declares no reversed items or no
-    row did.  The rows stay in the analysis."""
+    row did.  The rows stay in the analysis (``scored_only``: rows scored with an earlier fit, which they did not
+    enter: they are scored like every row)."""
     if not spec.reversed:
         return ()
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
@@ -527,10 +537,14 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict) -> tuple:
     n = len(found.rows)
     one = n == 1
     return (Problem(ProblemKind.SAME_ANSWER_ROWS, (), float(n),
-                    " ".join(parts) + f" {'It is' if one else 'They are'} kept in this analysis.",
+                    " ".join(parts) + (f" {'It is' if one else 'They are'} scored like every row." if scored_only else
+                                       f" {'It is' if one else 'They are'} kept in this analysis."),
                     f"check {'this row' if one else 'these rows'} in the data; if {'it was' if one else 'they were'} "
-                    f"not answered with care, fit again without {'it' if one else 'them'} (a --keep filter on an id "
-                    f"column, or deleting {'it' if one else 'them'} from a copy of the file) and compare the results."),)
+                    f"not answered with care, " + (f"leave {'its' if one else 'their'} scores out of what follows." if
+                                                   scored_only else
+                    f"fit again without {'it' if one else 'them'} (a row filter on an id column, "
+                    f"{option_in_both('--keep', 'keep=[...]')}; or deleting {'it' if one else 'them'} from a copy of the "
+                    f"file) and compare the results.")),)
 
 
 def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:
@@ -815,7 +829,7 @@ def with_design(result: FitResult, design) -> FitResult:
         problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), caution,
                              "read the p-values with caution, or fit without --cluster and say that rows are nested in "
                              "clusters."),)
-    uneven = design.weight_caution(free)
+    uneven = design.weight_caution()
     if uneven:
         problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,
                              "check the weights (a few rows may carry most of them), trim extreme weights by the survey's "
@@ -1077,11 +1091,28 @@ def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):
     return summary_moments(names, values, n_obs, matrix, sds, means, divisor, "<covariance matrix>")
 
 
+#: keywords a researcher may reach for that name no option, and what asks for the same
+KEYWORDS_BY_OTHER_NAMES = {"robust": "a robust test is asked for with test='robust' (or test='satorra-bentler' or "
+                                     "test='yuan-bentler')"}
+
+
 def make_options(options: dict) -> FitOptions:
-    try:
-        return FitOptions(**options)
-    except TypeError as exc:
-        raise OptionError(f"unknown option: {exc}") from None
+    """The fit options of the keywords a public function passed on (``options``); an unknown keyword is an error
+    naming it and the nearest keyword of that function or of the fit options (difflib), or what asks for the same
+    (:data:`KEYWORDS_BY_OTHER_NAMES`)."""
+    from dataclasses import fields
+    import inspect
+
+    known = [f.name for f in fields(FitOptions)]
+    unknown = next((k for k in options if k not in known), None)
+    if unknown is not None:
+        caller = inspect.currentframe().f_back.f_code  # the public function's own keywords are near names too
+        own = caller.co_varnames[:caller.co_argcount + caller.co_kwonlyargcount]
+        near = close_names(str(unknown), [*own, *known])
+        hint = (KEYWORDS_BY_OTHER_NAMES.get(unknown)
+                or (f"did you mean {near[0]}=...?" if near else f"the fit options are {', '.join(known)}"))
+        raise OptionError(f"unknown keyword '{printable(str(unknown))}': {hint}")
+    return FitOptions(**options)
 
 
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,

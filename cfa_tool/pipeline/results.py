@@ -8,7 +8,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.assessment.fit_indices import FitIndices
+from cfa_tool.assessment.fit_indices import FitIndices, IndicesToRead
 from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
 from cfa_tool.errors import EstimationError
@@ -331,7 +331,7 @@ class FitResult(Presentable):
     data: DataSummary
     observed: tuple[str, ...]
     latent: tuple[str, ...]
-    fit: FitIndices | None
+    fit: FitIndices | None  # normal-theory: "for reference only" beside a robust test; fit_to_read is what to read
     estimates: tuple[EstimateRow, ...]
     modification_indices: ModificationIndices  # every one, largest first (rows built when read)
     groups: tuple[GroupResult, ...]
@@ -374,6 +374,12 @@ class FitResult(Presentable):
                  "lower": r.estimate - z * r.se, "upper": r.estimate + z * r.se}
                 for r in self.estimates if r.free and np.isfinite(r.se)]
         return pd.DataFrame(rows, columns=["kind", "variables", "group", "estimate", "lower", "upper"])
+
+    @property
+    def fit_to_read(self) -> IndicesToRead | None:
+        """The fit figures the report tells researchers to read: the robust test's (``robust``) when there is one,
+        the normal-theory ones (``fit``, then marked "for reference only" in every report) otherwise."""
+        return None if self.fit is None else IndicesToRead.of(self.fit, self.robust)
 
     @property
     def admissible(self) -> bool:
@@ -437,6 +443,7 @@ class FitResult(Presentable):
             "n_obs": self.n_obs,
             "model": {"name": self.model_name, "source": self.model_source},
             "data": self.data.to_dict(),
+            "fit_to_read": clean(self.fit_to_read.to_dict()) if (self.fit is not None and self.converged) else None,
             "fit": clean(self.fit.to_dict()) if (self.fit is not None and self.converged) else None,
             "robust": clean(self.robust.to_dict()) if (self.robust is not None and self.converged) else None,
             "estimates": estimate_dicts(self.estimates),

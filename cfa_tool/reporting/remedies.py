@@ -7,17 +7,25 @@ from __future__ import annotations
 
 import enum
 
+from cfa_tool.options import option_in_both
+
 
 class Remedy(enum.Enum):
-    """A next step: the words for it and the command-line option that takes it."""
+    """A next step: the words for it, the command-line option that takes it and the Python keyword that does."""
 
-    COMPLETE_ROWS = ("a fit of the complete rows only", "--incomplete-rows listwise")
-    ROBUST = ("the scaled test and robust standard errors", "--robust")
+    COMPLETE_ROWS = ("a fit of the complete rows only", "--incomplete-rows listwise", "missing='listwise'")
+    ROBUST = ("the scaled test and robust standard errors", "--robust", "test='robust'")
 
-    def __init__(self, words: str, option: str):
+    def __init__(self, words: str, option: str, keyword: str):
         self.words = words
         self.option = option
+        self.keyword = keyword
+
+    @property
+    def named(self) -> str:
+        """The option and the keyword (:func:`cfa_tool.options.option_in_both`)."""
+        return option_in_both(self.option, self.keyword)
 
     def said(self) -> str:
-        """The words, followed by the option in parentheses."""
-        return f"{self.words} ({self.option})"
+        """The words, followed by the option and the keyword in parentheses."""
+        return f"{self.words} ({self.named})"

@@ -8,6 +8,7 @@ from cfa_tool.reporting.remedies import Remedy
 from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.reporting.numbers import num, unit
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
+from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, LINEAR_METHODS, ScoreMethod
 
 SCORES_CAUTION = (
@@ -139,8 +140,8 @@ def precision_table(result, k: int) -> ReportTable | None:
               f"deviation: {sds}). ")
     note = (first + f"SE: the typical distance of a score from the person's factor value; 95% band: "
             f"±1.96 SE about a score (normal approximation); real difference: the smallest difference between two "
-            f"people's scores that exceeds chance at the 5% level, 1.96 × √2 × SE (Gulliksen 1950; recalled from "
-            f"memory, common practice). SDs: divided by the factor's standard deviation." + _one_item_sentence(result.fit))
+            f"people's scores that exceeds chance at the 5% level, 1.96 × √2 × SE (Gulliksen 1950). SDs: divided by "
+            f"the factor's standard deviation." + _one_item_sentence(result.fit))  # (Gulliksen: scoring.quality)
     return _table(f"score_precision_{k}", "How precise is one person's score?" + _where(q), cols, rows, note,
                   values=([c for c, _ in cols], values))
 
@@ -257,8 +258,6 @@ def score_tables(result) -> list[ReportTable]:
     return out
 
 
-#: how the fit's own notes are introduced when the scores are of other data or from an earlier fit
-ABOUT_THE_FIT = "About the fit (not the scored data): "
 
 
 def warnings(result) -> list[str]:

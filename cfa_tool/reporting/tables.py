@@ -10,7 +10,7 @@ import numpy as np
 from cfa_tool.assessment.reliability import Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
-from cfa_tool.method import ADJUSTED_TEST, WeightKind
+from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
 from cfa_tool.language.names import names_text
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
@@ -758,7 +758,8 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
         return None
     body = [[r.factor, str(len(r.items)), ", ".join(r.reversed), num(r.sum_score_mean, 2), num(r.sum_score_sd, 2),
              unit(min(r.item_total), 2) if r.item_total else ""] for r in rows]
-    note = "The sum of each factor's items with reverse-keyed items reversed; SD with divisor N - 1."
+    note = (f"The sum of each factor's items with reverse-keyed items reversed. Mean, SD (divisor N - 1) and "
+            f"item-rest r come from the item means and covariances the fit analysed: {moments_source(result, group)}.")
     if any(r.sum_score_mean is None for r in rows):
         note += (" A mean is shown once the answer scale of the reversed items is known: declare it with "
                  "'reversed ITEMS on LOWEST to HIGHEST'.")
@@ -845,14 +846,36 @@ def item_table(result) -> ReportTable:
         note += (" Item-rest r: the correlation of the (keyed) item with the keyed sum of the other items of its "
                  "factor (corrected item-total correlation).")
     weights = _weights_column(result)
-    if weights is not None:
-        note += (f" Mean and SD weighted by {weights}" + ("; N, skewness, kurtosis and item-rest r count each row once."
-                                                          if shape or rest else "."))
+    if _estimated_for_gaps(result):
+        note += f" Mean{', SD and item-rest r' if rest else ' and SD'}: {moments_source(result, 0)}."
+    elif weights is not None:
+        note += (f" Mean{', SD and item-rest r' if rest else ' and SD'} weighted by {weights}"
+                 + ("; N, skewness and kurtosis count each row once." if shape else "."))
     title = ("Items: descriptive statistics (from the summary statistics)" if getattr(result.data, "analysed", None)
              is not None else "Items: descriptive statistics (analysed rows"
              + ("" if weights is None else f"; means and SDs weighted by {weights}") + ")")
     return _table("items", title, columns, body, note,
                   values=([c for c, _ in columns], values))
+
+
+def _estimated_for_gaps(result) -> bool:
+    """Whether the fit's item means and covariances are full-information ML estimates for rows with gaps (EM)."""
+    coverage = (getattr(result, "missing_data", None) or {}).get("coverage", {})
+    return result.method.missing is MissingData.FULL_INFORMATION and any(share < 1 for share in coverage.values())
+
+
+def moments_source(result, group: int = 0) -> str:
+    """What the item means and covariances of a fit's descriptive figures (item and keyed sum means, SDs, item-rest
+    correlations) are computed on, in words: the rows analysed, or with gaps under full-information ML the saturated
+    model's estimates for every row (EM; Dempster, Laird & Rubin 1977), weighted or not."""
+    weights = _weights_column(result)
+    n = result.groups[group].data.n_obs
+    weighted = f", weighted by {weights}" if weights else ""
+    if _estimated_for_gaps(result):
+        return (f"estimates for all {n} rows analysed by full-information ML (the saturated model, by EM; Dempster, "
+                f"Laird & Rubin 1977){weighted}, which assume answers missing at random; not the figures of the rows "
+                f"that answered every item")
+    return f"the {n} rows analysed{weighted}"
 
 
 def _weights_column(result) -> str | None:

@@ -39,6 +39,10 @@ class RowLeftOut(Enum):
 #: the row of a summary-statistics file that gives what a fit lacks (data.summary_stats.NotGiven)
 _SUMMARY_ROW = {NotGiven.MEANS: "mean", NotGiven.STANDARD_DEVIATIONS: "sd"}
 
+#: how the earlier fit's own cautions and notes are introduced when other data are scored with it (said of the fit's
+#: rows, not of the scored file's)
+ABOUT_THE_FIT = "About the fit (not the scored data): "
+
 #: the header of the id column when the file's row names name the rows
 ROW_NAME_HEADER = "row_name"
 
@@ -97,6 +101,31 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
         columns[answered_column(name)] = pd.array([None if np.isnan(v) else int(v) for v in answered[:, f]],
                                                   dtype="Int64")
     return id_name, columns
+
+
+#: output column that marks the rows that gave one answer to every item they answered, reverse-worded ones included
+#: (data.same_answers: 1, else 0; empty for rows not scored), written when the model declares reversed items
+SAME_ANSWER_COLUMN = "same_answer_to_every_item"
+
+
+def _with_same_answer_column(columns: dict, id_name, spec, items, rows: np.ndarray, at: np.ndarray, n: int) -> dict:
+    """``columns`` with :data:`SAME_ANSWER_COLUMN` last (``rows``: the answers of the rows read, at the places ``at``
+    of the ``n`` output rows); unchanged without a 'reversed' statement, where one answer throughout contradicts
+    nothing the model knows."""
+    from cfa_tool.data.same_answers import same_answer_rows
+
+    turned = np.array([x in spec.reverse_keyed for x in items], dtype=bool)
+    if not spec.reversed or not turned.any() or turned.all():
+        return columns
+    if id_name == SAME_ANSWER_COLUMN:
+        raise OptionError(f"the id column '{printable(id_name)}' has the name of a column the output holds; "
+                          f"rename that column in the data, or name the rows by another column")
+    found = same_answer_rows(rows, np.arange(len(rows)), turned)
+    flags = np.full(n, -1)
+    flags[at] = 0
+    if found is not None:
+        flags[at[list(found.rows)]] = 1
+    return {**columns, SAME_ANSWER_COLUMN: pd.array([None if v < 0 else int(v) for v in flags], dtype="Int64")}
 
 
 def answered_column(factor: str) -> str:
@@ -333,6 +362,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                position.loc[kept].to_numpy(), len(read_index))
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors,
                                       bool(standard_errors or ordinal_items), answered)
+    columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
+                                       len(read_index))
     table = pd.DataFrame(columns)
     if id_name is not None and id_name in list(table.columns)[1:]:
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
@@ -425,7 +456,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                       keep) -> ScoreResult:
     """Rows of ``data`` scored with the given models (one per group of the earlier fit ``result``)."""
     from cfa_tool.pipeline import inputs as api
-    from cfa_tool.data.row_ids import duplicate_note, row_ids
+    from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 
     given = api.missing_codes_option(missing_codes)
     carried = tuple(c for c in result.data.missing_codes if c not in given)  # the earlier fit's, read so here too
@@ -444,7 +475,14 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes.insert(0, f"{'The value' if one else 'The values'} {', '.join(f'{c:g}' for c in carried)} in {source} "
                         f"{'was' if one else 'were'} read as no answer, as the earlier fit read {'it' if one else 'them'} "
                         f"(its missing-value codes)")
-    result = api.with_odd_values(result, api.analysed_odd_values(loaded, spec, group), group)
+    # the cautions about the scored file computed on it, first; the earlier fit's own said to be about the fit
+    own = api.odd_value_problems(api.analysed_odd_values(loaded, spec, group), group) + api.same_answer_problems(
+        api._labelled(frame, group) if group is not None else frame, spec, ids_by_row_number(ids, read_frame),
+        scored_only=True)
+    # (the fit's own file scored again: its findings of the same kinds are the scored file's, said once)
+    again = {p.kind for p in own} if (source, len(read_frame)) == (result.data.source, result.data.rows_read) else set()
+    result = replace(result, problems=own + tuple(replace(p, explanation=ABOUT_THE_FIT + p.explanation)
+                                                  for p in result.problems if p not in own and p.kind not in again))
     from cfa_tool.scoring.model import OrdinalScoringModel
 
     ordinal = isinstance(models[0], OrdinalScoringModel)
@@ -485,6 +523,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     with_errors = bool(standard_errors or ordinal)  # a posterior mean always comes with its posterior SD
     answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors, answered)
+    columns = _with_same_answer_column(columns, id_name, spec, base.items, rows, position.loc[frame.index].to_numpy(), n)
     warnings = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 

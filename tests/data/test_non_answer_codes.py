@@ -63,7 +63,9 @@ def _labels(extra: dict | None = None) -> dict:
 
 @pytest.mark.parametrize("text", ["refused", "Refused.", "DON'T KNOW", "don’t know", "Don't know / refused",
                                   "Prefer not to say", "not applicable", "No answer", "Not asked", "skipped",
-                                  "missing", "Refused or don't know"])
+                                  "missing", "Refused or don't know",
+                                  # a new-user trial's SPSS file labelled 9 'did not answer' (common codebook wording)
+                                  "did not answer", "Didn't answer", "Not answered", "No answer given"])
 def test_the_declared_words_of_non_answers(text):
     assert says_no_answer(text)
 
@@ -265,3 +267,23 @@ def test_not_sure_between_the_answers_is_an_answer_and_beyond_them_is_none(tmp_p
     pyreadstat.write_dta(coded, str(beyond), variable_value_labels={c: {**SCALE, 9: "Not sure"} for c in ITEMS})
     read = cfa_tool.fit(MODEL, beyond)
     assert read.problems[0].kind is ProblemKind.VALUES_READ_AS_MISSING and "9 'Not sure'" in read.problems[0].explanation
+
+
+def test_a_labelled_code_beyond_the_scale_of_many_items_is_one_caution_naming_them(tmp_path, answers):
+    # a new-user trial: a labelled code beyond the scale of 16 items gave 16 near-identical cautions first (and the
+    # same code once more as a missing-value code): one caution names every item and its cells
+    import pyreadstat
+
+    data = answers.copy()
+    cells = {"c1": [1, 2], "c3": [4], "s1": [7, 8, 9], "s2": [12]}
+    for item, rows in cells.items():
+        data.loc[rows, item] = 9  # labelled 'Other': not a word of no answer, but far beyond the 0-3 scale
+    path = tmp_path / "riders.sav"
+    pyreadstat.write_sav(data, str(path), variable_value_labels={c: {**SCALE, 9: "Other"} for c in ITEMS})
+    result = cfa_tool.fit(MODEL, path)
+    named = [p for p in result.problems if p.kind is ProblemKind.VALUES_NOT_ANSWERS]
+    assert len(named) == 1
+    assert named[0].explanation == (
+        "4 items of riders.sav hold the code 9 labelled 'Other' (7 cells: c1 2, c3 1, s1 3, s2 1), beyond their other "
+        "labelled answers (0 to 3), analysed as an answer: a code of no answer?")
+    assert named[0].advice.startswith("If 9 'Other' is not an answer on the scale, give --missing-codes 9")

@@ -123,3 +123,43 @@ def test_a_reversed_scale_wider_than_every_answer_is_named_first(rider_demo, rid
     assert punctuality.sum_score_mean == pytest.approx(by_hand.mean(), abs=0.05)  # the tool's rows may keep gaps
     other = next(r for r in right.groups[0].reliability if r.factor == "punctuality")
     assert punctuality.sum_score_mean - other.sum_score_mean == pytest.approx(2.0, abs=1e-9)
+
+
+@pytest.mark.parametrize("saved", [False, True])
+def test_scores_of_other_data_name_that_files_rows_and_say_which_are_the_fits(saved, tmp_path):
+    # a new-user trial: scores --from-fit on a new wave named the earlier file's same-answer rows (some beyond the
+    # new file's length) and missed the new file's own.  The rows are planted by construction (a fixed seed)
+    import json
+
+    from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT, score_with_fit, score_with_saved_fit
+
+    result = cfa_tool.fit(MODEL + REVERSED, _planted(_answers()), id_column="respondent")  # rows 7 and 41
+    wave = _answers(seed=6).iloc[:50].reset_index(drop=True)
+    items = [c for c in wave.columns if c != "respondent"]
+    wave.loc[2, items] = 2.0  # data row 3 of the new wave: 2 to every item
+    if saved:
+        path = tmp_path / "fit.json"
+        path.write_text(json.dumps({"tool": "cfa-tool", **result.to_dict()}))
+        scored = score_with_saved_fit(MODEL + REVERSED, path, wave, id_column="respondent")
+    else:
+        scored = score_with_fit(result, wave, id_column="respondent")
+    same = [p for p in scored.fit.problems if p.kind is ProblemKind.SAME_ANSWER_ROWS]
+    own = same[0]
+    assert own.value == 1.0 and "data row 3 (P003)" in own.explanation and "scored like every row" in own.explanation
+    assert not own.explanation.startswith(ABOUT_THE_FIT) and "fit again" not in own.advice
+    # the earlier fit's rows are still said, as the fit's
+    assert [p.explanation.startswith(ABOUT_THE_FIT) for p in same[1:]] == [True]
+    assert "data rows 7 (P007), 41 (P041)" in same[1].explanation
+    assert all(p.explanation.startswith(ABOUT_THE_FIT) for p in scored.fit.problems[1:])
+    assert not np.isnan(scored.table.iloc[2, 1])  # scored like every row
+    # the scores file marks the row (a plain column, 1 or 0), the scored file's own rows only
+    assert scored.table["same_answer_to_every_item"].tolist() == [1 if k == 2 else 0 for k in range(50)]
+
+
+def test_the_scores_file_marks_the_same_answer_rows():
+    frame = _planted(_answers())
+    table = cfa_tool.scores(MODEL + REVERSED, frame, id_column="respondent").table
+    assert table.columns[-1] == "same_answer_to_every_item"
+    assert table.loc[table["same_answer_to_every_item"] == 1, "respondent"].tolist() == ["P007", "P041"]
+    # without a 'reversed' statement no row is judged, and the file has no such column
+    assert "same_answer_to_every_item" not in cfa_tool.scores(MODEL, frame).table.columns

@@ -501,7 +501,7 @@ def test_a_chosen_information_under_a_cluster_design_is_refused_for_the_design(h
 
 def test_very_uneven_weights_bring_a_caution_first(hs_data):
     # Kish's effective sample size n_eff = (sum w)^2 / sum w^2 (Kish 1965): ten rows weighing 200 and the rest 1
-    # leave about 13 effective rows for 21 free parameters, fewer than 5 per parameter (common practice)
+    # leave about 13 effective rows of 301, under half of them (a design effect of weighting above 2; common practice)
     from cfa_tool.assessment.admissibility import ProblemKind
 
     w = np.ones(len(hs_data))
@@ -510,9 +510,28 @@ def test_very_uneven_weights_bring_a_caution_first(hs_data):
     n_eff = w.sum() ** 2 / (w @ w)
     (problem,) = [p for p in result.problems if p.kind is ProblemKind.SMALL_EFFECTIVE_SAMPLE]
     assert problem.value == pytest.approx(round(n_eff, 1))
+    assert f"{n_eff / len(w):.0%} of the rows" in problem.explanation
     assert not problem.kind.inadmissible  # a caution, not an impossible solution
+    # weights 1, 2, 3 in turn: CV^2 = (2/3) / 2^2 = 1/6, n_eff = n / (1 + CV^2) = 86% of the rows (Kish 1992)
     even = cfa_tool.fit(THREE_FACTORS, hs_data.assign(w=1.0 + np.arange(len(hs_data)) % 3), weights="w")
+    assert even.design.effective_n == pytest.approx(len(hs_data) / (1 + 1 / 6), rel=1e-2)
     assert not any(p.kind is ProblemKind.SMALL_EFFECTIVE_SAMPLE for p in even.problems)
+
+
+def test_rows_per_parameter_is_one_rule_with_and_without_weights(hs_data):
+    # a new-user trial: weights all 1 said "so uneven that the 519 rows count as about 519.0" because the rows were
+    # fewer than 5 per parameter; the same rows unweighted gave no caution.  Even weights are not uneven, and the
+    # rule of rows per parameter (Bentler & Chou 1987, recalled from memory) reads the same with and without them
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    rows = hs_data.iloc[:60].reset_index(drop=True)  # 60 rows for 21 free parameters: fewer than 5 per parameter
+    plain = cfa_tool.fit(THREE_FACTORS, rows)
+    ones = cfa_tool.fit(THREE_FACTORS, rows.assign(w=1.0), weights="w")
+    assert ones.design.effective_n == pytest.approx(60)
+    assert not any(p.kind is ProblemKind.SMALL_EFFECTIVE_SAMPLE for p in ones.problems)
+    [rule] = [w for w in plain.warnings if "per parameter" in w]
+    assert [w for w in ones.warnings if "per parameter" in w] == [rule]
+    assert [p.kind for p in ones.problems] == [p.kind for p in plain.problems]
 
 
 def test_mardia_under_weights_says_it_is_unweighted(hs_data):

@@ -63,3 +63,52 @@ def test_the_readme_says_what_split_half_returns(hs_data):
     pair = cfa_tool.split_half(THREE, hs_data, seed=3)
     assert isinstance(pair, tuple) and len(pair) == 2
     assert all(callable(r.to_dict) and callable(r.summary) for r in pair)
+
+
+@pytest.mark.parametrize("test", ["normal", "robust"])
+def test_fit_to_read_gives_the_figures_the_report_tells_to_read(test, hs_data):
+    # a new-user trial: result.fit.cfi (the README's way) gave the unadjusted CFI every report marks "for reference
+    # only" beside a robust test.  fit_to_read gives the figures of the report's rows that carry a guide value, the
+    # same in the JSON; fit keeps the normal-theory ones, the report's rows marked "for reference only"
+    from cfa_tool.reporting.tables import fit_rows
+
+    result = cfa_tool.fit(THREE, hs_data, test=test)
+    values = {v[0]: v for row in fit_rows(result) for v in row.values}
+    guides = {v[0]: row.guide for row in fit_rows(result) for v in row.values}
+    read = result.fit_to_read
+    robust = "Robust " if test == "robust" else ""
+    assert read.cfi == values[f"{robust}CFI"][1] and read.tli == values[f"{robust}TLI"][1]
+    assert read.rmsea == values[f"{robust}RMSEA"][1] and read.rmsea_ci90 == tuple(values[f"{robust}RMSEA"][4:6])
+    assert guides[f"{robust}CFI"] == ">= .95" and read.srmr == values["SRMR"][1]
+    if test == "robust":
+        assert read.test == "satorra-bentler" and read.cfi != result.fit.cfi  # the normal-theory CFI is not the one
+        [scaled] = [v for k, v in values.items() if k.startswith("Scaled chi-square")]
+        assert (read.chi_square, read.df, read.p_value) == tuple(scaled[1:4])
+        assert guides["CFI (unadjusted)"] == "for reference only" and values["CFI (unadjusted)"][1] == result.fit.cfi
+    else:
+        assert read.test == "normal" and read.chi_square == values["Chi-square"][1]
+    assert result.to_dict()["fit_to_read"] == read.to_dict() and json.dumps(read.to_dict(), allow_nan=False)
+
+
+@pytest.mark.parametrize("keyword, said", [
+    ("robust", "unknown keyword 'robust': a robust test is asked for with test='robust'"),
+    ("ordinl", "unknown keyword 'ordinl': did you mean ordinal=...?"),  # a keyword of fit itself
+    ("mi_treshold", "unknown keyword 'mi_treshold': did you mean mi_threshold=...?"),  # a fit option
+])
+def test_an_unknown_keyword_is_named_with_the_nearest_one(keyword, said, hs_data):
+    # a new-user trial: robust=True gave "unknown option: FitOptions.__init__() got an unexpected keyword argument"
+    from cfa_tool.errors import OptionError
+
+    with pytest.raises(OptionError) as caught:
+        cfa_tool.fit(THREE, hs_data, **{keyword: True})
+    assert str(caught.value).startswith(said) and "__init__" not in str(caught.value)
+    with pytest.raises(OptionError, match="did you mean partial=...?"):  # another function's own keywords
+        cfa_tool.invariance(THREE, hs_data, "school", partal="auto")
+
+
+def test_advice_names_the_python_keyword_beside_the_option(hs_data):
+    # a new-user trial: summary() read from Python advised '--ordinal all' and '--keep' only
+    few = hs_data.assign(**{x: hs_data[x].round().clip(3, 6) for x in ("x1", "x2", "x3")})
+    text = " ".join(cfa_tool.fit(THREE, few).summary().split())
+    assert "--ordinal x1,x2,x3; from Python, ordinal=['x1', 'x2', 'x3']" in text
+    assert "(--robust; from Python, test='robust')" in text

@@ -212,7 +212,7 @@ def test_every_view_gives_the_option_of_a_remedy_and_the_methods_paragraph_none(
     lines = T.normality_lines(rider)
     assert len(lines) == 1
     for remedy in (Remedy.COMPLETE_ROWS, Remedy.ROBUST):
-        assert f"{remedy.words} ({remedy.option})" in lines[0]
+        assert f"{remedy.words} ({remedy.option}; from Python, {remedy.keyword})" in lines[0]
     report = fit_report(rider)
     assert lines[0] in next(t for t in report.tables if t.key == "fit").note  # under the fit table, in every view
     assert "--" not in report.paragraph
