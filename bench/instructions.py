@@ -5,6 +5,7 @@ shared machine (wall-clock times here vary by up to 2x between runs).
     python bench/instructions.py --call default   # case 1 as a user runs it: fit(text, data).to_dict()
     python bench/instructions.py --items 30 --fits 100 --call default   # a simulated model of run.py
     python bench/instructions.py --call bootstrap --fits 1000   # per bootstrap refit of case 1 (one process)
+    python bench/instructions.py --all-columns    # case 1 with every column of its data, as bench/default_call.py fits it
 
 Runs the fit 10 and 10 + ``--fits`` (default 1000) times under ``valgrind --tool=callgrind`` in two
 processes and reports the difference divided by ``--fits``, so that start-up (imports, the first fit)
@@ -56,6 +57,9 @@ def main() -> None:
                              "bootstrap: a bootstrap of 10 and of 10 + --fits resamples (percentile intervals, one process)")
     parser.add_argument("--items", type=int, default=9, help="9: Holzinger-Swineford (case 1); 30, 60...: run.py's simulated models")
     parser.add_argument("--fits", type=int, default=1000)
+    parser.add_argument("--all-columns", action="store_true",
+                        help="case 1 with every column of the Holzinger-Swineford data (the school's name, a text column, "
+                             "among them), as bench/default_call.py fits it; by default the nine items alone")
     args = parser.parse_args()
     with tempfile.TemporaryDirectory() as tmp:
         script, data, model = Path(tmp) / "fit.py", Path(tmp) / "data.csv", Path(tmp) / "model.cfa"
@@ -63,7 +67,8 @@ def main() -> None:
         if args.items == 9:
             from semopy.examples import holzinger39
 
-            holzinger39.get_data()[[f"x{i}" for i in range(1, 10)]].to_csv(data, index=False)
+            frame = holzinger39.get_data()
+            (frame if args.all_columns else frame[[f"x{i}" for i in range(1, 10)]]).to_csv(data, index=False)
             model.write_text("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n")
         else:
             sys.path.insert(0, str(ROOT / "bench"))
@@ -80,7 +85,7 @@ def main() -> None:
             if proc.returncode != 0 or found is None:
                 raise SystemExit(f"valgrind run with {n} fits failed:\n{err[-2000:]}")
             totals[n] = int(found.group(1).replace(",", ""))
-    case = "case 1" if args.items == 9 else f"{args.items} items"
+    case = ("case 1" + (" (every column)" if args.all_columns else "")) if args.items == 9 else f"{args.items} items"
     what = "bootstrap refit" if args.call == "bootstrap" else "fit"
     print(f"{case}, {args.call} call: {(totals[10 + args.fits] - totals[10]) / args.fits:,.0f} instructions per {what}")
 

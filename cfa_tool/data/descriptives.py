@@ -111,9 +111,13 @@ def few_category_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[str,
         return ()
     answered = ~np.isnan(values)
     low, high = answer_extremes(values, answered)
+    few = (high > low) & (high - low <= FEW_CATEGORIES - 1)
+    if not few.any():  # no item spans so few values (the common case): no whole numbers to look for
+        return ()
+    near = np.flatnonzero(few)  # whole numbers looked for in those items alone
+    part, given = values[:, near], answered[:, near]
     with np.errstate(invalid="ignore"):
-        whole = np.all(~answered | (values == np.round(values)), axis=0)
-    few = whole & (high > low) & (high - low <= FEW_CATEGORIES - 1)
+        few[near] = np.all(~given | (part == np.round(part)), axis=0)
     if not few.any():
         return ()
     candidates = tuple(name for name, flag in zip(names, few) if flag)

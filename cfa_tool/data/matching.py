@@ -107,6 +107,8 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
     that scale: one error naming every such item, value (with its value label) and row, and --missing-codes as the
     remedy (a value beyond the scale is a typing error or a code for no answer); a wider scale is offered second,
     only when no such value has a value label or looks like a code (data.odd_values.code_like)."""
+    if not spec.reversed:  # no statement declares a scale (the common case): nothing to judge
+        return
     import numpy as np
 
     from cfa_tool.data.moments import row_numbers

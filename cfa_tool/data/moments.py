@@ -98,6 +98,21 @@ def _stored_columns(frame: pd.DataFrame, where: list[int]) -> list:
     return [stored(j) for j in where]
 
 
+def column_dtypes(frame: pd.DataFrame) -> list:
+    """The dtype of every column of ``frame``, in order: read from the frame's store of columns, without the Series of
+    dtypes that ``frame.dtypes`` builds and checks (which cost more than a small fit's data checks; the store is not
+    public, so a pandas without it gets ``frame.dtypes``)."""
+    try:
+        return list(frame._mgr.get_dtypes())
+    except AttributeError:
+        return frame.dtypes.tolist()
+
+
+def stored_column(frame: pd.DataFrame, position: int):
+    """The array the frame holds for its column at ``position`` (read only; see :func:`_stored_columns`)."""
+    return _stored_columns(frame, [position])[0]
+
+
 def _public_array(column: pd.Series):
     return column.to_numpy() if isinstance(column.dtype, np.dtype) else column.array
 

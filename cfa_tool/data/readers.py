@@ -23,6 +23,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.missing_codes import apply_missing_codes, kept_codes_note, missing_codes_note
+from cfa_tool.data.moments import column_dtypes, stored_column
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
 from cfa_tool.errors import DataError, printable
 from cfa_tool.input_files import check_input_path, input_bytes, utf16_text
@@ -142,20 +143,22 @@ def blank_text_as_missing(frame: pd.DataFrame, keep_text: tuple[str, ...] = (), 
     out = frame
     # the text columns found from the dtypes at once: taking every column out of the frame to look at its dtype cost
     # more than a small fit (a data frame of 15 columns, one of them text)
-    text = [position for position, dtype in enumerate(frame.dtypes)
-            if dtype == object or isinstance(dtype, pd.StringDtype)]
+    # (and from the frame's store of columns: frame.dtypes builds a Series and each column taken out another)
+    text = [position for position, dtype in enumerate(column_dtypes(frame))
+            if dtype.kind == "O" and isinstance(dtype, (np.dtype, pd.StringDtype))]  # (not categories)
     for position in text:
         column = frame.columns[position]
         if column in keep_text:
             continue
-        series = frame.iloc[:, position]
+        stored = stored_column(frame, position)
         try:  # each distinct value judged once (a group column holds a few): pandas' string methods cost more
-            distinct = pd.unique(series).tolist()
+            distinct = pd.unique(stored).tolist()
         except TypeError:  # unhashable cells (lists in an object column) are no text
-            distinct = [v for v in series.tolist() if isinstance(v, str)]
+            distinct = [v for v in stored.tolist() if isinstance(v, str)]
         blanks = {v for v in distinct if isinstance(v, str) and (not v.strip() or (bool(markers) and v.strip() in markers))}
         if not blanks:
             continue
+        series = frame.iloc[:, position]
         values = series.to_numpy(dtype=object, na_value=None)
         blank = np.fromiter((isinstance(v, str) and v in blanks for v in values), dtype=bool, count=len(values))
         kept = series.where(~blank)

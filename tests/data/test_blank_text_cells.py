@@ -196,3 +196,23 @@ def test_a_no_answer_label_on_a_text_code_is_read_as_missing():
     assert out["mode"].isna().tolist() == [False, True, False, False, True, False]
     assert [(f.value, f.rows) for f in found] == [("x", (2, 5))]
     assert frame["mode"].notna().all()  # the frame given is left as it was
+
+
+def test_blank_cells_of_every_kind_of_text_column_in_a_data_frame():
+    """The text columns are found from the frame's dtypes (pandas' text and object columns; categories are no text
+    column): blanks read as no answer in each (beside lists in an object column too), a column left with numbers only
+    read as numbers, and a frame without blanks returned as it is (not copied)."""
+    from cfa_tool.data.readers import blank_text_as_missing
+
+    frame = pd.DataFrame({"district": ["north", " ", "south"], "q1": [1.0, 2.0, 3.0],
+                          "kind": pd.Categorical(["a", " ", "b"]), "lists": pd.Series([[1], [2], " "], dtype=object),
+                          "q2": pd.Series(["", 4, 5], dtype=object), "q3": pd.array(["x", "", None], dtype="string")})
+    out = blank_text_as_missing(frame)
+    assert out["district"].isna().tolist() == [False, True, False]
+    assert out["kind"].tolist() == ["a", " ", "b"]  # categories are not text cells
+    assert out["lists"].tolist()[:2] == [[1], [2]] and pd.isna(out["lists"].iloc[2])  # lists are no text; ' ' is
+    assert out["q2"].dtype == float and out["q2"].isna().tolist() == [True, False, False]
+    assert out["q3"].isna().tolist() == [False, True, True]
+    assert frame["district"].tolist() == ["north", " ", "south"]  # the caller's frame is not changed
+    clean = frame.drop(columns=["district", "lists", "q2", "q3"])
+    assert blank_text_as_missing(clean) is clean

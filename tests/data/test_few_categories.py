@@ -143,3 +143,27 @@ def test_a_nearly_constant_item_is_named_first_and_its_rare_category_in_the_ordi
         cfa_tool.fit(rider_model, data, ordinal="clean")
     # ordinary data have no such caution
     assert not any(p.kind is ProblemKind.NEARLY_CONSTANT for p in cfa_tool.fit(rider_model, rider_demo).problems)
+
+
+def test_whole_numbers_are_looked_for_only_among_items_of_a_narrow_range():
+    """The rule (whole numbers, two to four values apart) against numpy.unique counting each column's categories,
+    on columns of every kind side by side: few whole categories with gaps, a narrow measure, many categories, a
+    constant, and a wide scale of whole numbers; and a matrix in which no item is narrow (the common case)."""
+    rng = np.random.default_rng(20261203)
+    n = 200
+    columns = {"few_gaps": rng.integers(1, 4, n).astype(float), "narrow_measure": rng.uniform(1, 3, n),
+               "many": rng.integers(1, 8, n).astype(float), "constant": np.full(n, 2.0),
+               "wide_whole": rng.integers(0, 11, n).astype(float), "four": rng.integers(2, 6, n).astype(float)}
+    columns["few_gaps"][::5] = np.nan
+    values = np.column_stack(list(columns.values()))
+    names = tuple(columns)
+
+    def counted(x):  # numpy's own count of the answered values, and whether all are whole
+        answers = np.unique(x[~np.isnan(x)])
+        return 2 <= len(answers) and answers[-1] - answers[0] <= 3 and bool(np.all(answers == np.round(answers)))
+
+    expected = tuple(name for name, x in columns.items() if counted(x))
+    assert expected == ("few_gaps", "four")
+    assert few_category_items(values, names) == expected
+    wide = values[:, [1, 2, 4]]
+    assert few_category_items(wide, ("narrow_measure", "many", "wide_whole")) == ()

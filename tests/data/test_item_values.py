@@ -67,3 +67,14 @@ def test_a_pandas_without_its_column_accessor_gives_the_same_array(monkeypatch):
     monkeypatch.delattr(pd.DataFrame, "_get_column_array", raising=False)
     np.testing.assert_array_equal(item_values(frame, names), _expected(frame, names))
     assert item_values(frame, ["q1", "district"]) is None
+
+
+def test_column_dtypes_are_pandas_own():
+    """data.moments.column_dtypes (read from the frame's store of columns) against pandas' DataFrame.dtypes, on a
+    frame of text, numbers, nullable integers, categories and objects, and on a frame without columns."""
+    from cfa_tool.data.moments import column_dtypes
+
+    frame = _frame().assign(kind=pd.Categorical(["a", "b", "a", "b", "a"]), note=pd.Series([[1], "", None, "x", 2.0],
+                                                                                        dtype=object))
+    assert column_dtypes(frame) == frame.dtypes.tolist()
+    assert column_dtypes(frame.iloc[:, []]) == []
