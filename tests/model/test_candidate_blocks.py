@@ -5,7 +5,8 @@ matrices: for the ML discrepancy F = log|Sigma| + tr(S Sigma^-1) - log|S| - p, w
     gradient     d_c  = tr(W D_c),  W = Sigma^-1 (Sigma - S) Sigma^-1
     information  H_ce = tr(Sigma^-1 D_c Sigma^-1 D_e)
 
-(the expected second derivatives of F; Joreskog 1969, Neudecker & Satorra 1991 in matrix form).  The candidates
+(the gradient and the expected second derivatives of F in the matrix form of Neudecker & Satorra 1991, the
+source model/rank_two.py gives; the trace form written here from memory of it).  The candidates
 include diagonal entries (a residual variance, a factor variance), whose derivative carries the factor 1/2 of the
 rank-two form, as the equality tests of variances across groups read them."""
 
