@@ -19,7 +19,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.linalg import lapack, solve_triangular
+from scipy.linalg import blas, lapack, solve_triangular
 
 from cfa_tool.numerics import distributions as dist
 
@@ -58,9 +58,9 @@ class Whitened:
 
 def whitened_rows(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] | None = None) -> Whitened:
     """:class:`Whitened` of ``rows``; ``moments``: the rows' (mean, covariance with divisor N) when the caller has
-    them (the fit's sample moments).  Y is Z times the transposed inverse of the Cholesky factor L, one matrix
-    product (as fast as the triangular solve with p columns, and the centred rows Z are kept for the case
-    diagnostics)."""
+    them (the fit's sample moments).  Y' = L^-1 Z' for the Cholesky factor L, one triangular product with the
+    inverse of L (N p^2 / 2 multiply-adds; at 60 and 120 items and N = 1,000 faster than the triangular solve with N
+    right-hand sides and than a full product with L^-T; the centred rows Z are kept for the case diagnostics)."""
     mean, covariance = moments if moments is not None else (rows.mean(axis=0), None)
     Z = rows - mean
     L, info = lapack.dpotrf(Z.T @ Z / len(rows) if covariance is None else covariance, lower=1, clean=1)
@@ -69,7 +69,7 @@ def whitened_rows(rows: np.ndarray, moments: tuple[np.ndarray, np.ndarray] | Non
     inverse, info = lapack.dtrtri(L, lower=1)
     if info != 0:
         raise np.linalg.LinAlgError("the covariance matrix of the rows is not positive definite")
-    Y = Z @ inverse.T
+    Y = blas.dtrmm(1.0, inverse, Z.T, lower=1).T  # Z' is Z's memory read column by column: copied, not changed
     return Whitened(Y, 2.0 * float(np.log(L.diagonal()).sum()), np.einsum("ij,ij->i", Y, Y), Z)
 
 
@@ -113,9 +113,11 @@ def _sum_of_cubed_products(Y: np.ndarray, w: np.ndarray | None = None) -> float:
     total = 0.0
     if p * p >= 1.5 * n:  # Gram blocks (pairs of row blocks, off-diagonal blocks counted twice): timed faster here
         size = max(1, min(n, GRAM_ROWS, BLOCK // n))
+        space = np.empty(size * n)  # every block's products in the same memory, taken once (fresh memory each time:
+        # about a tenth slower at 60 items and N = 1,000)
         for start in range(0, n, size):
             stop = min(n, start + size)
-            G = Y[start:stop] @ Y[start:].T
+            G = np.matmul(Y[start:stop], Y[start:].T, out=space[: (stop - start) * (n - start)].reshape(stop - start, -1))
             if w is None:  # the cubes summed in one pass, no array of them (a quarter faster at 60 items)
                 total += 2.0 * float(np.einsum("ij,ij,ij->", G, G, G))
                 D = G[:, : stop - start]

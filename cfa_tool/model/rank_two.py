@@ -135,9 +135,10 @@ def cross_term(basis: EntryBasis, K: np.ndarray, Q: np.ndarray) -> np.ndarray:
 
 
 def model_columns(model: EntryBasis, K: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """(c_e K[:, u_e], K[:, v_e]): the columns of K that every candidate's cross-information reads, gathered once
-    per group (c_e is 1 or 1/2, so folding it in here changes no rounding)."""
-    return K[:, model.u] * model.c, K[:, model.v]
+    """(2 c_e K[:, u_e], K[:, v_e]): the columns of K that every candidate's cross-information reads, gathered once
+    per group, with the factor 2 c_e of the formula folded in (2 c_e is 2 or 1, a power of two: no rounding
+    changes)."""
+    return K[:, model.u] * (2.0 * model.c), K[:, model.v]
 
 
 def candidate_blocks(cand: EntryBasis, model: EntryBasis, K: np.ndarray, Q: np.ndarray, Vm: np.ndarray | None,
@@ -149,9 +150,10 @@ def candidate_blocks(cand: EntryBasis, model: EntryBasis, K: np.ndarray, Q: np.n
     uc, vc, cc = cand.u, cand.v, cand.c
     Ku, Kv = columns  # K is symmetric, so K[u_c, u_e] = Ku[u_c]: whole rows gathered
     d = 2.0 * cc * Q[uc, vc]
-    H = Ku[uc] * Kv[vc]
-    H += Kv[uc] * Ku[vc]
-    H *= (2.0 * cc)[:, None]  # 2 c_c c_e in all (powers of two: exact in any order)
+    H = Ku[uc] * Kv[vc]  # 2 c_e c_c (K[u_c, u_e] K[v_c, v_e] + K[u_c, v_e] K[v_c, u_e]); c_c is 1 for every
+    H += Kv[uc] * Ku[vc]  # off-diagonal entry (all but equality tests of variances): powers of two, exact in any order
+    if not (cc == 1.0).all():
+        H *= cc[:, None]
     h = 2.0 * cc**2 * (K[uc, uc] * K[vc, vc] + K[uc, vc] ** 2)
     if Vm is not None:
         sc, se = mean_coefficients(cand, a), mean_coefficients(model, a)
