@@ -96,7 +96,7 @@ DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.SMALL_EFFECTI
 #: better 10); a note below it, not a cutoff of its own
 ROWS_PER_PARAMETER = 5
 #: the rule in words, in the cautions of a small sample and of a small group alike
-ROWS_RULE = (f"a common rule of thumb, recalled from Bentler & Chou 1987, asks for at least {ROWS_PER_PARAMETER} rows "
+ROWS_RULE = (f"a common rule of thumb (Bentler & Chou 1987) asks for at least {ROWS_PER_PARAMETER} rows "
              f"per parameter; a convention, not a law")
 
 

@@ -42,8 +42,10 @@ def _problem_lines(named_results) -> list[str]:
 
 def _caution_lines(named_results) -> list[str]:
     """One line per caution about a solution that is admissible but needs care in reading (a method factor that
-    carries next to nothing, a standardized loading above 1), each once, named by its model."""
-    kinds = (ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE)
+    carries next to nothing, a standardized loading above 1, fewer rows than free parameters in the sample or a
+    group), each once, named by its model."""
+    kinds = (ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, ProblemKind.SMALL_SAMPLE,
+             ProblemKind.SMALL_GROUP)
     lines: list[str] = []
     for name, r in named_results:
         for p in getattr(r, "problems", ()) if r.converged else ():
@@ -528,7 +530,8 @@ def replication_report(replications) -> Report:
     for k, rep in enumerate(reps):
         problems += _problem_lines([(f"the calibration fit ({rep.calibration})", rep.calibration_result),
                                     (f"the loose refit ({rep.validation})", rep.loose)])
-        cautions += _caution_lines([(f"the calibration fit ({rep.calibration})", rep.calibration_result)])
+        cautions += _caution_lines([(f"the calibration fit ({rep.calibration})", rep.calibration_result),
+                                    (f"the loose refit ({rep.validation})", rep.loose)])
         cal = _replication_figures(rep.calibration_result, rep.adjusted)
         rows = [[f"Calibration fit (N = {rep.calibration_result.n_obs})", f"{cal[0]:.3f}", str(cal[1]),
                  p_value(cal[2]), unit(cal[3]), unit(cal[4])]]

@@ -66,3 +66,26 @@ def test_workflows_that_fit_say_it_too(hs_data):
     assert not any(p.kind is ProblemKind.SMALL_SAMPLE for p in one.problems)
     assert any(w.startswith("20 rows for the 18 free parameters") for w in one.warnings)
     assert three.problems[0].kind is ProblemKind.SMALL_SAMPLE
+
+
+def test_compare_and_replicate_give_the_small_sample_caution_first(hs_data):
+    """A hostile trial: a validation sample of 20 rows for 21 free parameters, and a comparison on those rows, were
+    reported with no word on their size while fit opens with the caution; every view of them now opens with it.
+    The 20 rows are population-exact (tests.conftest.exact_cfa_rows), so that the fits converge."""
+    import numpy as np
+
+    from cfa_tool.reporting.workflow_tables import comparison_report, replication_report
+    from tests.conftest import exact_cfa_rows
+
+    loadings = np.zeros((9, 3))
+    for i in range(9):
+        loadings[i, i // 3] = 0.8
+    phi = np.array([[1, .4, .3], [.4, 1, .3], [.3, .3, 1]])
+    small = exact_cfa_rows(loadings, phi, np.diag(np.full(9, .36)), 20, 5, ITEMS)
+    replication = cfa_tool.replicate(THREE_FACTORS, hs_data[ITEMS], small)
+    notice = replication_report(replication).notice
+    assert notice is not None and any("loose refit" in line and "20 rows for the 21 free parameters" in line
+                                      for line in notice.lines)
+    one_factor = "factor g: x1, x2, x3, x4, x5, x6, x7, x8, x9\n"
+    notice = comparison_report(cfa_tool.compare([THREE_FACTORS, one_factor], small)).notice
+    assert notice is not None and any("20 rows for the 21 free parameters" in line for line in notice.lines)
