@@ -626,13 +626,11 @@ def read_saved_fit(path) -> SavedFit:
     from cfa_tool.assessment.admissibility import saved_fit_problems
     from cfa_tool.data.answer_words import coding_from_json
     from cfa_tool.input_files import input_json
-    from cfa_tool.model.saved_estimates import saved_rows
+    from cfa_tool.model.saved_estimates import saved_fit_payload, saved_rows
     from cfa_tool.pipeline.results import DataSummary
 
     source = f"'{printable(str(path))}'"
-    payload = input_json(Path(path), "fit result", OptionError)
-    if not isinstance(payload, dict) or payload.get("tool") != "cfa-tool" or "estimates" not in payload:
-        raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)")
+    payload = saved_fit_payload(input_json(Path(path), "fit result", OptionError), source)
     rows = saved_rows(payload["estimates"], source)  # the estimate rows, read here once
     # the estimates themselves judged as a fresh fit is, whatever the file's flag and problems say
     problems = saved_fit_problems(payload, rows, source)
@@ -656,7 +654,8 @@ def read_saved_fit(path) -> SavedFit:
                               answer_coding=coding_from_json(d.get("answer_coding"), source))
         model = payload["model"]
     except (ValueError, KeyError, TypeError, AttributeError):
-        raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)") from None
+        saved_fit_payload(None, source)  # the one error of a file that is not a saved fit
+        raise
     return SavedFit(str(model.get("name")), str(model.get("source")), str(payload.get("estimator")), int(payload["n_obs"]),
                     summary, tuple(summary.variables), problems, tuple(payload.get("warnings", ())),
                     payload.get("group_column"), rows, payload, source)
