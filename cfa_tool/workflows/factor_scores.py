@@ -673,6 +673,7 @@ def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
     multi = saved.group_column is not None
     labels = tuple(g["name"] for g in saved.payload.get("groups", ())) if multi else None
     _same_item_names(spec, saved.data.variables)
+    _same_keying(spec, saved)
     if saved.payload.get("ordinal_items"):
         return ordinal_models_of_estimates(spec, rows, saved.data, labels, saved.source)
     mean_structure = multi or any(row.kind == "intercept" for row in rows)
@@ -687,6 +688,25 @@ def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
         out.append(scoring_model(model.matrices(theta, g), table.observed, table.latent,
                                  labels[g] if labels else None, means))
     return out, list(labels) if labels else [None]
+
+
+def _same_keying(spec, saved: SavedFit) -> None:
+    """The reverse-keyed items a model file declares must be those of the model the saved fit was made with (its
+    JSON's reliability names each factor's declared reversed items): a 'reversed' statement added or dropped since
+    changes the keyed sums the scores report, while the estimates are the fit's (hostile trial 9)."""
+    reliability = saved.payload.get("reliability") or {}
+    factors = reliability.get("factors", ()) if isinstance(reliability, dict) else ()
+    fitted = {x for f in factors if isinstance(f, dict) and f.get("keying") == "declared" for x in f.get("reversed", ())}
+    here = set(spec.reverse_keyed)
+    if factors and here != fitted:
+        added, dropped = sorted(here - fitted), sorted(fitted - here)
+        said = "; ".join(part for part in (
+            f"it declares {', '.join(printable(x) for x in added)} reversed, which the fit did not" if added else "",
+            f"it does not declare {', '.join(printable(x) for x in dropped)} reversed, as the fit did" if dropped else "")
+            if part)
+        raise OptionError(f"the model file {spec.source} is not the model {saved.source} was fitted with ({said}); "
+                          f"a 'reversed' statement changes the keyed sums: give the model file of that fit, or fit "
+                          f"this model first")
 
 
 def _same_item_names(spec, fitted: tuple[str, ...]) -> None:

@@ -279,3 +279,19 @@ def test_a_json_file_that_is_not_a_saved_fit_is_refused_in_one_wording(tmp_path,
         assert code == 2
         errors.add(err.strip())
     assert errors == {f"cfa-tool: '{path}' is not the JSON result of a fit by cfa-tool (fit --json)"}
+
+
+def test_scores_refuse_a_model_file_whose_reversed_items_differ_from_the_fit(tmp_path, capsys):
+    """A hostile trial: scores --from-fit took a model file that added 'reversed x2' to the fitted model and reported
+    keyed sums with x2 reversed, without a word; the keying is the fit's or the run is refused."""
+    model = tmp_path / "hs.cfa"
+    model.write_text(THREE_FACTORS)
+    fitted = tmp_path / "fit.json"
+    assert _run(["fit", model, "--data", HS_FILE, "--json", fitted], capsys)[0] == 0
+    keyed = tmp_path / "keyed.cfa"
+    keyed.write_text(THREE_FACTORS + "reversed x2 on 0 to 10\n")
+    out = tmp_path / "scores.csv"
+    code, _, err = _run(["scores", keyed, "--data", HS_FILE, "--from-fit", fitted, "--output", out], capsys)
+    assert code == 2 and err.count("\n") == 1 and not out.exists()
+    assert "it declares x2 reversed, which the fit did not" in err
+    assert _run(["scores", model, "--data", HS_FILE, "--from-fit", fitted, "--output", out], capsys)[0] == 0
