@@ -149,15 +149,23 @@ def keep_option(keep) -> list[str]:
     return list(keep)
 
 
+def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: tuple[str, ...] = (),
+                  items=None) -> LoadedData:
+    """The data read for the model ``spec``, as every command reads them: a missing-value code on a declared scale
+    refused, no-answer words and labels read as missing in ``items`` only (None: the model's items), and the words
+    its 'answers' statements code kept as answers whatever they say."""
+    check_codes_off_scales(spec, missing_codes_option(missing_codes))
+    listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
+    return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed)
+
+
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
                            text_columns: tuple[str, ...] = (), items=None) -> tuple[Spec, LoadedData, list[str]]:
     """The model and the data read for it; no-answer words and labels are read as missing in ``items`` only (None:
     the model's items), never in a group, id or design column."""
     keep = keep_option(keep)
     spec = load_spec(model)
-    check_codes_off_scales(spec, missing_codes_option(missing_codes))
-    listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
-    loaded = load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed)
+    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items)
     frame = loaded.frame
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
     columns = [c if type(c) is str else str(c) for c in labels]

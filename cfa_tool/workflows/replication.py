@@ -36,7 +36,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.model.parameters import one_group_only
-from cfa_tool.pipeline.inputs import (load_data, load_spec, make_options, missing_codes_option, odd_value_problems,
+from cfa_tool.pipeline.inputs import (load_data_for, load_spec, make_options, missing_codes_option, odd_value_problems,
                                       odd_values_named, refit_missing_handling, screened)
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.answer_words import code_answer_words, coding_json, coding_record
@@ -286,8 +286,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     if _same_file(calibration, validation):
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           "new data (or give one file as --data to split it in two random halves)")
-    read = [load_data(calibration, sheet, missing_codes, items=spec.observed_names),
-            load_data(validation, sheet, missing_codes, items=spec.observed_names)]
+    read = [load_data_for(spec, calibration, sheet, missing_codes), load_data_for(spec, validation, sheet, missing_codes)]
     for loaded in read:
         check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
     read, notes = zip(*(_words_coded(spec, loaded, missing_codes) for loaded in read))
@@ -327,7 +326,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
                                                      options if missing is None else {**options, "missing": missing})
-    loaded = load_data(data, sheet, missing_codes, items=spec.observed_names)
+    loaded = load_data_for(spec, data, sheet, missing_codes)
     check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
     loaded, notes = _words_coded(spec, loaded, missing_codes)
     frame, source = loaded.frame, loaded.source

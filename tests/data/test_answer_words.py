@@ -340,3 +340,24 @@ def test_a_word_of_no_answer_the_statement_codes_is_an_answer(files, tmp_path):
                for w in fitted.warnings)
     # without the word in the statement it is no answer, as the vocabulary reads it
     assert cfa_tool.fit(model.replace('"Don\'t know" = 3, ', ''), tmp_path / "dont_know.csv").data.non_answers
+
+
+def test_replication_reads_the_data_as_fit_does(tmp_path):
+    """A re-check: replicate read its files its own way, so a word the 'answers' statement codes ('Don't know' = 3)
+    was read as missing and a --missing-codes code on a declared scale was taken; it now reads them through fit's
+    one reading of data for a model (pipeline.inputs.load_data_for).  Reference: the same answers as numbers."""
+    numbers = _answers()
+    words = numbers.copy()
+    middle = {**WORDS, 3: "Don't know"}
+    for x in ITEMS:
+        words[x] = numbers[x].map(middle).astype(object)
+    words.to_csv(tmp_path / "dont_know.csv", index=False)
+    numbers.to_csv(tmp_path / "numbers.csv", index=False)
+    model = MODEL.replace('"Neither agree nor disagree" = 3', '"Don\'t know" = 3')
+    coded = cfa_tool.split_half(model, tmp_path / "dont_know.csv", seed=4)
+    plain = cfa_tool.split_half(PLAIN, tmp_path / "numbers.csv", seed=4)
+    for a, b in zip(coded, plain):
+        assert a.calibration_result.fit.chi_square == pytest.approx(b.calibration_result.fit.chi_square, rel=1e-10)
+    with pytest.raises(OptionError, match="--missing-codes 5 is an answer of the scale 1 to 5"):
+        cfa_tool.replicate(PLAIN + "reversed quiet on 1 to 5\n", tmp_path / "numbers.csv", numbers.iloc[:150],
+                           missing_codes=[5])
