@@ -303,6 +303,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     with api.odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
         result = api._fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
                                design)
+        api.reference_group_applies(result, reference_group)  # one that sets nothing cannot apply, as in fit
         if not result.admissible:
             problem = next((p for p in result.problems if p.kind.inadmissible), None)
             why = problem.phrase() if problem is not None else result.message

@@ -151,6 +151,8 @@ def test_a_reference_group_that_sets_nothing_is_an_error(spaced):
         cfa_tool.fit(MODEL, spaced, group="area", reference_group="south")
     with pytest.raises(OptionError, match="sets nothing in these models"):
         cfa_tool.compare([MODEL, MODEL + "covary y1, y2\n"], spaced, group="area", reference_group="south")
+    with pytest.raises(OptionError, match="--reference-group south sets nothing in this model"):
+        cfa_tool.scores(MODEL, spaced, group="area", reference_group="south")
     scalar = cfa_tool.fit(MODEL + "invariance scalar\n", spaced, group="area", reference_group="south")
     means = [r for r in scalar.estimates if r.kind == "mean"]
     assert all(not r.free for r in means if r.group == "south") and any(r.free for r in means if r.group != "south")
