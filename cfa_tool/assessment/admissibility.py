@@ -147,7 +147,7 @@ def counted_parameters(free: int, labels: Iterable[str]) -> int:
     ML adds to a one-group model, as the items' saturated means (a one-group model has no mean structure of its
     own): so one missing cell does not change the count.  Groups of several keep their intercepts, part of every
     multi-group model whatever the estimator."""
-    return free - sum(1 for label in labels if split_label(label)[0] == "intercept")
+    return free - sum(1 for label in labels if label.startswith("intercept("))  # a label begins with its kind
 
 
 def free_parameters(result) -> int:

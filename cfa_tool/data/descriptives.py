@@ -3,6 +3,7 @@ and the shape of its distribution."""
 
 from __future__ import annotations
 
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -90,7 +91,18 @@ def nearly_constant_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[N
     """The items (columns of ``values``, gaps NaN) whose answers differ from their most common answer in at
     least one row but fewer than :func:`rare_answer_limit` rows."""
     found = []
+    answered = np.isfinite(values).sum(axis=0)
+    limits = np.maximum(NEARLY_CONSTANT_ROWS, NEARLY_CONSTANT_SHARE * answered)
+    with np.errstate(invalid="ignore"), warnings.catch_warnings():
+        warnings.simplefilter("ignore", RuntimeWarning)  # an item without answers has no median
+        median = np.nanmedian(values, axis=0) if values.size else np.zeros(values.shape[1])
+    # an answer held by all rows but fewer than the limit holds more than half of them when the limit is below half,
+    # so it is the median: only such items (and those of so few rows that the limit reaches half) are counted out
+    others = answered - (values == median).sum(axis=0)
+    candidates = (answered > 0) & ((others < limits) | (limits >= answered / 2))
     for j, name in enumerate(names):
+        if not candidates[j]:
+            continue
         column = values[:, j]
         column = column[np.isfinite(column)]
         if not len(column):

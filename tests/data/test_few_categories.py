@@ -167,3 +167,38 @@ def test_whole_numbers_are_looked_for_only_among_items_of_a_narrow_range():
     assert few_category_items(values, names) == expected
     wide = values[:, [1, 2, 4]]
     assert few_category_items(wide, ("narrow_measure", "many", "wide_whole")) == ()
+
+
+def test_the_screen_of_nearly_constant_items_finds_what_counting_every_column_finds():
+    """nearly_constant_items looks only at items whose median is held by all rows but a few (speed): the result
+    must be that of counting every column's answers with numpy.unique, the rule as written, on random columns of
+    every size (tiny samples, whose limit reaches half the rows, included)."""
+    from cfa_tool.data.descriptives import NearlyConstant, nearly_constant_items, rare_answer_limit
+
+    def counted(values, names):
+        found = []
+        for j, name in enumerate(names):
+            column = values[:, j][np.isfinite(values[:, j])]
+            if len(column):
+                levels, counts = np.unique(column, return_counts=True)
+                others = len(column) - int(counts.max())
+                if 0 < others < rare_answer_limit(len(column)):
+                    found.append(NearlyConstant(name, float(levels[counts.argmax()]), others, len(column)))
+        return tuple(found)
+
+    rng = np.random.default_rng(20261203)
+    seen = 0
+    for _ in range(600):
+        n, p = int(rng.integers(1, 40)), int(rng.integers(1, 6))
+        values = rng.integers(1, 4, (n, p)).astype(float)
+        for j in range(p):
+            if rng.random() < 0.5:
+                values[:, j] = 2.0
+                k = int(rng.integers(0, 6))
+                values[rng.integers(0, n, k), j] = rng.integers(1, 5, k)
+        values[rng.random((n, p)) < 0.1] = np.nan
+        names = tuple(f"i{j}" for j in range(p))
+        expected = counted(values, names)
+        seen += len(expected)
+        assert nearly_constant_items(values, names) == expected
+    assert seen > 100  # the random columns hold many nearly constant items
