@@ -3,7 +3,6 @@ and the shape of its distribution."""
 
 from __future__ import annotations
 
-import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -93,12 +92,11 @@ def nearly_constant_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[N
     found = []
     answered = np.isfinite(values).sum(axis=0)
     limits = np.maximum(NEARLY_CONSTANT_ROWS, NEARLY_CONSTANT_SHARE * answered)
-    with np.errstate(invalid="ignore"), warnings.catch_warnings():
-        warnings.simplefilter("ignore", RuntimeWarning)  # an item without answers has no median
-        median = np.nanmedian(values, axis=0) if values.size else np.zeros(values.shape[1])
     # an answer held by all rows but fewer than the limit holds more than half of them when the limit is below half,
-    # so it is the median: only such items (and those of so few rows that the limit reaches half) are counted out
-    others = answered - (values == median).sum(axis=0)
+    # so it is the middle answer: only such items (and those of so few rows that the limit reaches half) are counted
+    middle = (np.sort(values, axis=0)[np.minimum(answered // 2, max(len(values) - 1, 0)), np.arange(values.shape[1])]
+              if values.size else np.zeros(values.shape[1]))  # gaps (NaN) sort last
+    others = answered - (values == middle).sum(axis=0)
     candidates = (answered > 0) & ((others < limits) | (limits >= answered / 2))
     for j, name in enumerate(names):
         if not candidates[j]:
