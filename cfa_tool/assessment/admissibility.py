@@ -81,6 +81,8 @@ class ProblemKind(enum.Enum):
     SCALE_ENDS_UNREACHED = ("declared scale wider than the answers", "scale ends unreached", False)
     # not of the solution but of the data: a group with fewer rows than its model has free parameters
     SMALL_GROUP = ("group smaller than its model", "fewer rows than parameters", False)
+    # not of the solution but of the data: a group every row of which has weight 0, so not in the analysis
+    GROUP_WEIGHTED_OUT = ("group whose rows all have weight 0", "group weighted out", False)
     # not of the solution but of the data scored with an earlier fit (workflows.factor_scores): rows in groups the fit
     # does not have (no scores), and answers outside those of the rows the fit analysed (scores extrapolate)
     UNKNOWN_GROUPS_SCORED = ("rows in groups the fit does not have", "groups the fit lacks", False)
@@ -227,6 +229,7 @@ class Problem:
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
             K.SMALL_GROUP: f"fewer rows ({v.split('.')[0]}) than free parameters of the group's model",
+            K.GROUP_WEIGHTED_OUT: "a group every row of which has weight 0, left out of the analysis",
             K.UNKNOWN_GROUPS_SCORED: "rows in groups the earlier fit does not have, which get no scores",
             K.ANSWERS_BEYOND_FITTED: "answers outside the range of the rows the earlier fit analysed",
             K.SAME_ANSWER_ROWS: "rows that gave the same answer to every item, reverse-worded ones included (kept in "

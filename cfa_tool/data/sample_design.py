@@ -323,20 +323,12 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             notes.append(f"{int(zero.sum())} rows have weight 0 in '{columns.weights}' and were left out of the "
                          f"estimation")
             rows = rows[~zero]
-            if group is not None and group in frame.columns:
-                counts = _labels(before[group]).value_counts()
-                left = sorted(set(_labels(frame[group]).dropna()))
-                gone = sorted(set(counts.index) - set(left))
-                if gone:
-                    said = (f"every row of group{'s' if len(gone) > 1 else ''} "
-                            + ", ".join(f"'{printable(g)}' ({counts[g]} row{'s' if counts[g] != 1 else ''})"
-                                        for g in gone)
-                            + f" of '{printable(group)}' has weight 0 in '{printable(columns.weights)}'")
-                    if len(left) < 2:  # the multi-group analysis cannot run: the weights, not the labels, are why
-                        raise DataError(f"{source}: {said}, so only {len(left)} group is left "
-                                        f"({', '.join(repr(printable(g)) for g in left)}); a multi-group analysis "
-                                        f"needs at least two")
-                    notes.insert(0, f"{said}, so {'they are' if len(gone) > 1 else 'it is'} not in the analysis")
+            gone, left = groups_weighted_out(before, columns.weights, group, w)
+            if gone and len(left) < 2:  # the multi-group analysis cannot run: the weights, not the labels, are why
+                raise DataError(f"{source}: {weighted_out_words(gone, group, columns.weights)}, so only {len(left)} "
+                                f"group is left ({', '.join(repr(printable(g)) for g in left)}); a multi-group "
+                                f"analysis needs at least two")
+            # a group weighted out is a caution of the fit, first (pipeline.inputs.odd_value_problems)
     for what, name in (("cluster", columns.cluster), ("stratum", columns.strata)):
         if name is not None:
             absent = frame[name].isna().to_numpy()
@@ -409,6 +401,25 @@ def refuse_lone_strata(design: RowDesign, columns: DesignColumns, source: str, w
         raise DataError(f"{source}: stratum '{printable(lone[0])}' of column '{printable(columns.strata)}' has a single "
                         f"{'cluster' if columns.cluster else 'row'} among the rows analysed, and {why}; merge it with a "
                         f"neighbouring stratum in the data")
+
+
+def groups_weighted_out(frame: pd.DataFrame, weights: str, group: str | None, w: np.ndarray | None = None
+                        ) -> tuple[list[tuple[str, int]], list[str]]:
+    """The groups of ``group`` every row of which has weight 0 in ``weights`` (label, rows), and the labels left."""
+    if group is None or group not in frame.columns or weights not in frame.columns:
+        return [], []
+    if w is None:
+        w = pd.to_numeric(frame[weights], errors="coerce").to_numpy(dtype=float)
+    labels = _labels(frame[group])
+    counts = labels.value_counts()
+    left = sorted(set(labels[w != 0].dropna()))
+    return [(g, int(counts[g])) for g in sorted(set(counts.index) - set(left))], left
+
+
+def weighted_out_words(gone: list[tuple[str, int]], group: str, weights: str) -> str:
+    return (f"every row of group{'s' if len(gone) > 1 else ''} "
+            + ", ".join(f"'{printable(g)}' ({n} row{'s' if n != 1 else ''})" for g, n in gone)
+            + f" of '{printable(group)}' has weight 0 in '{printable(weights)}'")
 
 
 def _labels(column: pd.Series) -> pd.Series:

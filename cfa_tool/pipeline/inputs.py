@@ -355,6 +355,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                                        ordinal_estimator, design), ids_by_row_number(ids, frame))
     reference_group_applies(result, reference_group)
     result = with_missing_reading(with_odd_values(result, loaded, group), loaded, missing_codes)
+    weighted_out = weighted_out_problems(loaded.frame, group, design)  # a group the weights leave out: first
+    if weighted_out:
+        result = replace(result, problems=weighted_out + tuple(result.problems))
     if spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         result = with_same_answer_rows(result, _labelled(frame, group), spec, ids_by_row_number(ids, frame))
         found = tuple(p for p in scale_ends_problems(_labelled(frame, group), spec) if p not in result.problems)
@@ -415,6 +418,27 @@ def _id_can_apply(spec: Spec, ordinal, fit_options: FitOptions) -> None:
                       f"the chi-square, which {why}, and in the caution about rows that gave one answer to every item, "
                       f"which needs reverse-worded items (a 'reversed' statement); leave it out ('scores' takes --id "
                       f"to name each scored row)")
+
+
+def weighted_out_problems(frame: pd.DataFrame, group: str | None, design: DesignColumns | None) -> tuple:
+    """A caution naming the groups every row of which has weight 0 under ``design``: they leave a multi-group
+    analysis, which the title's list of groups shows only by their absence."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.sample_design import groups_weighted_out, weighted_out_words
+
+    if design is None or design.weights is None:
+        return ()
+    gone, _ = groups_weighted_out(frame, design.weights, group)
+    if not gone:
+        return ()
+    one = len(gone) == 1
+    return (Problem(ProblemKind.GROUP_WEIGHTED_OUT, (), float(len(gone)),
+                    f"{weighted_out_words(gone, group, design.weights)[0].upper()}"
+                    f"{weighted_out_words(gone, group, design.weights)[1:]}, so {'it is' if one else 'they are'} not "
+                    f"in this analysis.",
+                    f"if {'that group' if one else 'those groups'} should be compared, give {'its' if one else 'their'} "
+                    f"rows their weights; otherwise leave {'it' if one else 'them'} out with a row filter so that the "
+                    f"report says why."),)
 
 
 def odd_value_problems(loaded: LoadedData, group: str | None = None) -> tuple:
