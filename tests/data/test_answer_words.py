@@ -323,17 +323,23 @@ def test_words_match_whatever_their_invisible_marks_and_kinds_of_space():
         cfa_tool.fit(MODEL, words)
 
 
-def test_a_word_of_no_answer_the_statement_codes_is_an_answer(files, tmp_path):
-    """'"Don't know" = 3' in the model file: the statement decides, the vocabulary of no-answer words does not (hostile
-    trial 9: 2250 answers were read as missing against the statement); the note says the word is analysed as 3.
-    Reference: the same answers stored as numbers."""
+def _dont_know(folder) -> tuple[pd.DataFrame, str]:
+    """The answers as numbers, and the model whose statement codes 'Don't know' as 3, with the same answers written
+    as words (3 as 'Don't know') in folder/dont_know.csv."""
     numbers = _answers()
     words = numbers.copy()
     middle = {**WORDS, 3: "Don't know"}
     for x in ITEMS:
         words[x] = numbers[x].map(middle).astype(object)
-    words.to_csv(tmp_path / "dont_know.csv", index=False)
-    model = MODEL.replace('"Neither agree nor disagree" = 3', '"Don\'t know" = 3')
+    words.to_csv(folder / "dont_know.csv", index=False)
+    return numbers, MODEL.replace('"Neither agree nor disagree" = 3', '"Don\'t know" = 3')
+
+
+def test_a_word_of_no_answer_the_statement_codes_is_an_answer(files, tmp_path):
+    """'"Don't know" = 3' in the model file: the statement decides, the vocabulary of no-answer words does not (hostile
+    trial 9: 2250 answers were read as missing against the statement); the note says the word is analysed as 3.
+    Reference: the same answers stored as numbers."""
+    numbers, model = _dont_know(tmp_path)
     fitted = cfa_tool.fit(model, tmp_path / "dont_know.csv")
     assert fitted.fit.chi_square == pytest.approx(cfa_tool.fit(PLAIN, numbers).fit.chi_square, rel=1e-10)
     assert any("'Don't know', a word that usually means no answer, is analysed as the answer 3" in w
@@ -346,14 +352,8 @@ def test_replication_reads_the_data_as_fit_does(tmp_path):
     """A re-check: replicate read its files its own way, so a word the 'answers' statement codes ('Don't know' = 3)
     was read as missing and a --missing-codes code on a declared scale was taken; it now reads them through fit's
     one reading of data for a model (pipeline.inputs.load_data_for).  Reference: the same answers as numbers."""
-    numbers = _answers()
-    words = numbers.copy()
-    middle = {**WORDS, 3: "Don't know"}
-    for x in ITEMS:
-        words[x] = numbers[x].map(middle).astype(object)
-    words.to_csv(tmp_path / "dont_know.csv", index=False)
+    numbers, model = _dont_know(tmp_path)
     numbers.to_csv(tmp_path / "numbers.csv", index=False)
-    model = MODEL.replace('"Neither agree nor disagree" = 3', '"Don\'t know" = 3')
     coded = cfa_tool.split_half(model, tmp_path / "dont_know.csv", seed=4)
     plain = cfa_tool.split_half(PLAIN, tmp_path / "numbers.csv", seed=4)
     for a, b in zip(coded, plain):
