@@ -94,8 +94,8 @@ def nearly_constant_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[N
     limits = np.maximum(NEARLY_CONSTANT_ROWS, NEARLY_CONSTANT_SHARE * answered)
     # an answer held by all rows but fewer than the limit holds more than half of them when the limit is below half,
     # so it is the middle answer: only such items (and those of so few rows that the limit reaches half) are counted
-    middle = (np.sort(values, axis=0)[np.minimum(answered // 2, max(len(values) - 1, 0)), np.arange(values.shape[1])]
-              if values.size else np.zeros(values.shape[1]))  # gaps (NaN) sort last
+    middle = (np.sort(values, axis=0)[answered // 2, np.arange(values.shape[1])]  # gaps (NaN) sort last
+              if values.size else np.zeros(values.shape[1]))
     others = answered - (values == middle).sum(axis=0)
     candidates = (answered > 0) & ((others < limits) | (limits >= answered / 2))
     for j, name in enumerate(names):

@@ -432,10 +432,9 @@ def weighted_out_problems(frame: pd.DataFrame, group: str | None, design: Design
     if not gone:
         return ()
     one = len(gone) == 1
+    said = weighted_out_words(gone, group, design.weights)
     return (Problem(ProblemKind.GROUP_WEIGHTED_OUT, (), float(len(gone)),
-                    f"{weighted_out_words(gone, group, design.weights)[0].upper()}"
-                    f"{weighted_out_words(gone, group, design.weights)[1:]}, so {'it is' if one else 'they are'} not "
-                    f"in this analysis.",
+                    f"{said[0].upper()}{said[1:]}, so {'it is' if one else 'they are'} not in this analysis.",
                     f"if {'that group' if one else 'those groups'} should be compared, give {'its' if one else 'their'} "
                     f"rows their weights; otherwise leave {'it' if one else 'them'} out with a row filter so that the "
                     f"report says why."),)
@@ -666,7 +665,10 @@ def _nearly_constant_problems(result, loaded: LoadedData | None, group: str | No
     names = tuple(getattr(result, "observed", ()) or ())
     if loaded is None or not names:
         return ()
-    values = item_values(_labelled(loaded.frame, group), names)
+    frame = _labelled(loaded.frame, group)
+    values = loaded.items.of(frame, names) if loaded.items is not None else None  # taken out once per fit
+    if values is None:
+        values = item_values(frame, names)
     if values is None:  # not plain numbers: the reading of the items names what is wrong
         return ()
     found = nearly_constant_items(values, names)
