@@ -31,17 +31,17 @@ def missing_codes_note(source: str | Path, codes, read_as_none: list[tuple[str, 
             f"with --missing-codes ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})")
 
 
-def apply_missing_codes(frame: pd.DataFrame, codes, items: Collection[str] | None = None
-                        ) -> tuple[pd.DataFrame, list[tuple[str, int]], list[tuple[str, float, int]]]:
-    """``frame`` with the cells of numbers holding one of ``codes`` (--missing-codes) read as no answer in the item
-    columns ``items`` (every column when None: no model yet), the (column, cells) read so, and the (column, code,
-    cells) of other columns that hold a code and keep it: a group, cluster or weight column's 9 is the value
-    'Grade 9' more often than a code of no answer (new-user trial 9: --missing-codes 9 emptied grade 9 and its
-    rows left the analysis)."""
+def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: Collection[str] | None = None
+                        ) -> tuple[pd.DataFrame, tuple[str, ...]]:
+    """``frame`` (of the data file ``source``) with the cells of numbers holding one of ``codes`` (--missing-codes)
+    read as no answer in the item columns ``items`` (every column when None: no model yet), and the notes saying
+    so: how many cells of which columns (:func:`missing_codes_note`), and the other columns that hold a code and
+    keep it (:func:`kept_codes_note`): a group, cluster or weight column's 9 is the value 'Grade 9' more often than
+    a code of no answer (new-user trial 9: --missing-codes 9 emptied grade 9 and its rows left the analysis)."""
     read_as_none: list[tuple[str, int]] = []
     kept: list[tuple[str, float, int]] = []
     if not codes:
-        return frame, read_as_none, kept
+        return frame, ()
     frame = frame.copy()
     mine = None if items is None else {str(x) for x in items}
     for column in frame.columns:
@@ -58,7 +58,7 @@ def apply_missing_codes(frame: pd.DataFrame, codes, items: Collection[str] | Non
                 cells = int((frame[column] == code).sum())
                 if cells:
                     kept.append((column, code, cells))
-    return frame, read_as_none, kept
+    return frame, (missing_codes_note(source, codes, read_as_none),) + ((kept_codes_note(source, kept),) if kept else ())
 
 
 def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int]]) -> str:

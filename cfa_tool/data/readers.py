@@ -22,7 +22,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.missing_codes import apply_missing_codes, kept_codes_note, missing_codes_note
+from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.moments import column_dtypes, stored_column
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
 from cfa_tool.errors import DataError, printable
@@ -119,14 +119,13 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     mine = None if items is None else {str(x) for x in items}
     as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
     frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
-    frame, read_as_none, kept = apply_missing_codes(frame, missing_codes, mine)  # in the items only
+    frame, code_notes = apply_missing_codes(frame, missing_codes, path, mine)  # in the items only
     frame, labelled = labelled_non_answers(frame, {c: v for c, v in loaded.value_labels.items() if c not in as_written},
                                            tuple(missing_codes))
     if frame is not loaded.frame:
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
-    if missing_codes:
-        loaded = replace(loaded, notes=loaded.notes + (missing_codes_note(path, missing_codes, read_as_none),)
-                         + ((kept_codes_note(path, kept),) if kept else ()))
+    if code_notes:
+        loaded = replace(loaded, notes=loaded.notes + code_notes)
     return loaded
 
 

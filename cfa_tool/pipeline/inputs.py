@@ -14,7 +14,7 @@ import pandas as pd
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
-from cfa_tool.data.missing_codes import apply_missing_codes, kept_codes_note, missing_codes_note
+from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.matching import answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
@@ -118,9 +118,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
                               f"frame; leave the sheet out")
         frame = blank_text_as_missing(data)  # '' and '  ' are no answer, as an empty cell of a file is
-        frame, read_as_none, kept = apply_missing_codes(frame, missing_codes, items)  # in the items only
-        notes = ((missing_codes_note("<data frame>", missing_codes, read_as_none),) if missing_codes else ()) + (
-            (kept_codes_note("<data frame>", kept),) if kept else ())
+        frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items)  # in the items only
         return LoadedData(frame, "<data frame>", notes=notes)
     if isinstance(data, (str, Path)):
         if summary_source(data):
