@@ -352,14 +352,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
                                        ordinal_estimator, design), ids_by_row_number(ids, frame))
     reference_group_applies(result, reference_group)
-    result = with_missing_reading(with_odd_values(result, loaded, group), loaded, missing_codes)
-    weighted_out = weighted_out_problems(loaded.frame, group, design)  # a group the weights leave out: first
-    if weighted_out:
-        result = replace(result, problems=weighted_out + tuple(result.problems))
-    if spec.reversed:  # rows with one answer throughout contradict reverse-worded items
-        result = with_same_answer_rows(result, _labelled(frame, group), spec, ids_by_row_number(ids, frame))
-        found = tuple(p for p in scale_ends_problems(_labelled(frame, group), spec) if p not in result.problems)
-        result = replace(result, problems=found + tuple(result.problems)) if found else result
+    result = with_missing_reading(with_odd_values(result, loaded, group, spec, design, ids_by_row_number(ids, frame)),
+                                  loaded, missing_codes)
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 
@@ -438,15 +432,17 @@ def weighted_out_problems(frame: pd.DataFrame, group: str | None, design: Design
                     f"report says why."),)
 
 
-def odd_value_problems(loaded: LoadedData, group: str | None = None) -> tuple:
+def odd_value_problems(loaded: LoadedData, group: str | None = None, design: DesignColumns | None = None) -> tuple:
     """Values in the item columns that look like no answers (a missing-value code, a totals row), and those the
     file marks as no answer and that were read as missing (data.non_answers), as cautions that come first in
-    every view (assessment.admissibility.Problem); with a ``group`` column, its labels that differ only in case
+    every view (assessment.admissibility.Problem); with a ``group`` column, the groups the sampling ``design``'s
+    weights leave out (:func:`weighted_out_problems`) and its labels that differ only in case
     (:func:`group_case_problems`) first."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     if group is not None:
-        return group_case_problems(loaded.frame, group) + odd_value_problems(loaded)
+        return (weighted_out_problems(loaded.frame, group, design) + group_case_problems(loaded.frame, group)
+                + odd_value_problems(loaded))
 
     marked = non_answer_caution(loaded.non_answers, loaded.source,
                                 loaded.items.names if loaded.items is not None else None)
@@ -493,12 +489,36 @@ def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answe
                       non_answers=tuple(f for f in non_answers if f.column in set(names)), cautions=cautions)
 
 
-def with_odd_values(result, loaded: LoadedData, group: str | None = None):
-    """``result`` (anything with ``problems``) with the cautions about its data before its own: those of
-    :func:`odd_value_problems` (with the ``group`` column's) and of :func:`few_answers_problems`; the fit is not
-    refused, since the user may know better."""
-    found = tuple(p for p in odd_value_problems(loaded, group) + few_answers_problems(result, loaded, group)
-                  if p not in result.problems)  # said once (scores of the fitted file, say)
+def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | None = None,
+                  design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
+                  coverage: dict | None = None, n_obs: int | None = None) -> tuple:
+    """The cautions on the data that come first in every view, composed here once for every command (fit, check,
+    compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: a 'reversed' statement's
+    declared scale that no answer reaches (:func:`scale_ends_problems`) and rows with one answer throughout
+    (:func:`same_answer_problems`, ``ids``: data-row number -> id), both with a ``spec`` that declares reversed
+    items; the groups the weights leave out, group labels differing by case and values that look like no answers
+    (:func:`odd_value_problems`); items answered by few rows (``coverage``: item -> share of the ``n_obs`` rows
+    analysed answering it) and nearly constant items (:func:`few_answers_problems`) among ``names`` (the model's
+    items by default).  The data are not refused: the user may know better."""
+    found: tuple = ()
+    if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
+        frame = _labelled(loaded.frame, group)
+        found = scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
+    names = names if names is not None else (spec.observed_names if spec is not None else ())
+    found += odd_value_problems(loaded, group, design) + few_answers_problems(names, coverage or {}, n_obs, loaded,
+                                                                              group)
+    return tuple(dict.fromkeys(found))  # each once
+
+
+def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: Spec | None = None,
+                    design: DesignColumns | None = None, ids: dict | None = None):
+    """``result`` (a fit: anything with ``problems``, ``observed``, ``n_obs`` and ``missing_data``) with the
+    cautions about its data (:func:`data_problems`, the few answers judged by its own coverage) before its own,
+    each once (scores of the fitted file, say)."""
+    coverage = (getattr(result, "missing_data", None) or {}).get("coverage", {})
+    found = tuple(p for p in data_problems(loaded, spec, group, design, ids, tuple(getattr(result, "observed", ()) or ()),
+                                           coverage, getattr(result, "n_obs", None))
+                  if p not in result.problems)
     return replace(result, problems=found + tuple(result.problems)) if found else result
 
 
@@ -631,20 +651,21 @@ def with_same_answer_rows(result, frame: pd.DataFrame, spec: Spec, ids: dict):
 FEW_ANSWERS_SHARE = 0.10
 
 
-def few_answers_problems(result, loaded: LoadedData | None = None, group: str | None = None) -> tuple:
+def few_answers_problems(names: tuple[str, ...], coverage: dict, n_obs: int | None, loaded: LoadedData | None = None,
+                         group: str | None = None) -> tuple:
     """Cautions naming the items whose variance rests on few rows: those answered by fewer than
     :data:`FEW_ANSWERS_SHARE` of the rows analysed (the result's missing-data coverage; an item answered by 5 of 480
     rows can drive the fit indices alone), and, from the rows of ``loaded`` analysed (with a ``group`` column, those
     with a label), those answered alike by all rows but a few (data.descriptives.nearly_constant_items: the few
-    rows set the size and the sign of the item's loading, and so whether the keyed sums reverse it)."""
-    constant = _nearly_constant_problems(result, loaded, group)
-    coverage = (getattr(result, "missing_data", None) or {}).get("coverage", {})
+    rows set the size and the sign of the item's loading, and so whether the keyed sums reverse it).  ``names``:
+    the items; ``coverage``: item -> share of the ``n_obs`` rows analysed answering it."""
+    constant = _nearly_constant_problems(names, loaded, group)
     few = {x: share for x, share in coverage.items() if share < FEW_ANSWERS_SHARE}
-    if not few:
+    if not few or not n_obs:
         return constant
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    n = result.n_obs
+    n = n_obs
     listed = ", ".join(f"'{printable(x)}' ({round(share * n)} of {n} rows)" for x, share in list(few.items())[:5]) + (
         f" and {len(few) - 5} more" if len(few) > 5 else "")
     one = len(few) == 1
@@ -656,11 +677,11 @@ def few_answers_problems(result, loaded: LoadedData | None = None, group: str | 
             ) + constant
 
 
-def _nearly_constant_problems(result, loaded: LoadedData | None, group: str | None) -> tuple:
+def _nearly_constant_problems(names: tuple[str, ...], loaded: LoadedData | None, group: str | None) -> tuple:
     """The caution of :func:`few_answers_problems` on items answered alike by all rows but a few."""
     from cfa_tool.data.descriptives import nearly_constant_items
 
-    names = tuple(getattr(result, "observed", ()) or ())
+    names = tuple(names)
     if loaded is None or not names:
         return ()
     frame = _labelled(loaded.frame, group)
@@ -850,14 +871,15 @@ def design_test(fit_options, design: DesignColumns):
     return fit_options
 
 
-def with_design(result: FitResult, design) -> FitResult:
-    """The result stating the design it was fitted under (status line, JSON, methods paragraph, cautions)."""
-    from cfa_tool.assessment.admissibility import Problem, ProblemKind, free_parameters
+def design_problems(design, free: int) -> tuple:
+    """The cautions of a sampling ``design`` (data.sample_design.SampleDesign) on a model of ``free`` parameters,
+    first in every view, the same for fit, check, compare and invariance: too few clusters for cluster-robust
+    standard errors, and weights so uneven that Kish's effective sample size is below half the rows."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    problems = result.problems
-    free = free_parameters(result)  # one count for fit, compare and invariance
+    problems: tuple = ()
     caution = design.caution(free)
-    if caution:  # first in every view: the standard errors and tests themselves are in doubt
+    if caution:  # the standard errors and tests themselves are in doubt
         problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), caution,
                              "read the p-values with caution, or fit without --cluster and say that rows are nested in "
                              "clusters."),)
@@ -866,6 +888,14 @@ def with_design(result: FitResult, design) -> FitResult:
         problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,
                              "check the weights (a few rows may carry most of them), trim extreme weights by the survey's "
                              "rules, or report the unweighted fit beside the weighted one."),)
+    return problems
+
+
+def with_design(result: FitResult, design) -> FitResult:
+    """The result stating the design it was fitted under (status line, JSON, methods paragraph, cautions)."""
+    from cfa_tool.assessment.admissibility import free_parameters
+
+    problems = result.problems + design_problems(design, free_parameters(result))  # one count for every command
     lone = design.lone_caution()  # conservative, not optimistic: a note, and the methods paragraph says it
     warnings = result.warnings + ((lone,) if lone and lone not in result.warnings else ())
     fit = result.fit
@@ -1224,7 +1254,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
-                       odd_value_problems(loaded, group) + small,
+                       data_problems(loaded, spec, group, design, coverage=coverage, n_obs=len(answered)) + small
+                       + (design_problems(sample_design, table.n_free) if sample_design is not None else ()),
                        len(frame) - len(answered), odd_complete,
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,
                        group_rows=tuple(m.n_obs for _, m in groups) if labels else (),

@@ -115,8 +115,8 @@ class CheckResult(Presentable):
 
     def summary(self) -> str:
         spec = self.spec
-        lines = [f"Caution: {self.caution}"] if self.caution else []
-        lines += [f"The model is valid: {len(spec.factors)} factor{'s' if len(spec.factors) != 1 else ''}, "
+        # the design's cautions (too few clusters, uneven weights) are among ``problems``, first as in the fit's views
+        lines = [f"The model is valid: {len(spec.factors)} factor{'s' if len(spec.factors) != 1 else ''}, "
                  f"{len(spec.observed_names)} indicators, all found in {self.source}."]
         if self.groups and self.group_rows:
             lines.append(f"Groups: {len(self.groups)} (" + ", ".join(

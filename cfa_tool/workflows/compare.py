@@ -10,7 +10,7 @@ import pandas as pd
 
 from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missing_handling, design_test, few_category_notes, load_spec, make_options, moments_for,
                                       missing_codes_option, of_summary_statistics,
-                                      odd_value_problems, odd_values_named, reference_group_applies, weighted_out_problems, with_missing_reading,
+                                      data_problems, odd_values_named, reference_group_applies, with_missing_reading,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_row_options, summary_source, with_design)
 from cfa_tool.data.answer_words import code_answer_words, refuse_different_codings, refuse_for_summary_statistics
@@ -180,7 +180,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             found = _compare_ordinal(specs, names, complete, source, group, reference_group,
                                      replace(fit_options, missing=None if pairwise else MissingData.LISTWISE),
                                      ordinal_items, ordinal_estimator, dropped, design, pairwise, notes,
-                                     odd_value_problems(loaded, group) + weighted_out_problems(loaded.frame, group, design))
+                                     _data_problems(loaded, specs, group, design, complete))
             reference_group_applies(found.results, reference_group)
             return replace(found, results=tuple(with_missing_reading(r, loaded, missing_codes) for r in found.results),
                            without_group=without_group)
@@ -198,7 +198,20 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         reference_group_applies(results, reference_group)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
         return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
-                          fit_options.missing, tuple(notes), odd_value_problems(loaded, group) + weighted_out_problems(loaded.frame, group, design), without_group=without_group)
+                          fit_options.missing, tuple(notes), _data_problems(loaded, specs, group, design, complete, results),
+                          without_group=without_group)
+
+
+def _data_problems(loaded, specs, group, design, complete, results=()) -> tuple:
+    """The cautions on the data of every model compared (pipeline.inputs.data_problems, as fit gives them), each
+    once: the items judged by each model's fit of the rows compared (``complete``), those of no fit by the rows."""
+    found: list = []
+    for k, spec in enumerate(specs):
+        r = results[k] if k < len(results) else None
+        coverage = (r.missing_data or {}).get("coverage", {}) if r is not None else {}
+        found += data_problems(loaded, spec, group, design, names=tuple(spec.observed_names), coverage=coverage,
+                               n_obs=r.n_obs if r is not None else len(complete))
+    return tuple(dict.fromkeys(found))
 
 
 def _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items, method,

@@ -18,9 +18,9 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_category_notes,
-                                      make_options, moments_for, odd_value_problems, ordinal_estimator_option,
+                                      make_options, moments_for, data_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
-                                      with_missing_reading, with_rows_read, weighted_out_problems)
+                                      with_missing_reading, with_rows_read)
 from cfa_tool.assessment.admissibility import ProblemKind, group_size_problems
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
@@ -256,8 +256,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     frame, source = loaded.frame, loaded.source
     # values that look like no answers, among the rows with a group label: first among the cautions
     analysed = analysed_odd_values(loaded, spec, group)
-    data_cautions = tuple(p.line() for p in odd_value_problems(analysed, group)
-                          + weighted_out_problems(loaded.frame, group, design))
+    data_cautions = tuple(p.line() for p in data_problems(analysed, spec, group, design))  # as fit gives them
     if spec.invariant:
         where = spec.equalities_location
         raise ModelError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "

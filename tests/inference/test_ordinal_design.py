@@ -299,7 +299,9 @@ def test_check_states_the_design_as_the_fit_uses_it(survey):
     assert "Design: sampling weights (w; sum" in text and "1 rows have weight 0 in 'w' and were left out" in text
     assert found.to_dict()["design"]["clusters"] == 80 and found.caution is None
     few = cfa_tool.check(ONE_FACTOR, survey.assign(unit=survey["unit"] // 8), cluster="unit")
-    assert few.summary().startswith("Caution: Only 10 clusters in 'unit'")
+    # the fit's caution, in the check's caution box as in the fit's (not in its body a second time)
+    assert few.problems[0].kind is ProblemKind.FEW_CLUSTERS and few.problems[0].explanation.startswith(
+        "Only 10 clusters in 'unit'") and "Only 10 clusters" not in few.summary()
 
 
 def test_scores_fit_under_the_design_and_score_every_row(survey, tmp_path, capsys):
