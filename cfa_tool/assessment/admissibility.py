@@ -79,6 +79,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the data: a 'reversed ... on MIN to MAX' scale that no answer reaches at one end
     # (pipeline.inputs.scale_ends_problems): the keyed sums' means depend on the scale declared
     SCALE_ENDS_UNREACHED = ("declared scale wider than the answers", "scale ends unreached", False)
+    # not of the solution but of the data: more than a share of the rows left out listwise for a missing answer
+    # (pipeline.continuous.listwise_problem): the rows kept may differ from those left out
+    ROWS_LEFT_OUT = ("rows left out listwise", "rows left out", False)
     # not of the solution but of the data: a group with fewer rows than its model has free parameters
     SMALL_GROUP = ("group smaller than its model", "fewer rows than parameters", False)
     # not of the solution but of the data: a group every row of which has weight 0, so not in the analysis
@@ -224,6 +227,7 @@ class Problem:
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",
             K.FEW_ANSWERS: "items answered by few of the rows",
+            K.ROWS_LEFT_OUT: f"{v.split('.')[0]} rows left out listwise for a missing answer",
             K.SCALE_ENDS_UNREACHED: "a scale declared for reverse-keyed items whose ends no answer reaches",
             K.NEARLY_CONSTANT: "items answered alike by all rows but a few",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "

@@ -12,7 +12,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.assessment.admissibility import group_size_problems, solution_problems
+from cfa_tool.assessment.admissibility import Problem, ProblemKind, group_size_problems, solution_problems
 from cfa_tool.data.descriptives import answer_extremes, item_shape
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, incomplete_case_diagnostics, normalized_residuals
@@ -201,37 +201,47 @@ FULL_INFORMATION_INSTEAD = "full-information ML (--incomplete-rows full-informat
 PAIRWISE_INSTEAD = "pairwise present rows (the default for ordinal items, without --incomplete-rows listwise)"
 
 
-def listwise_line(dropped: int, read: int, analysed: int, where: str = "",
-                  instead: str = FULL_INFORMATION_INSTEAD) -> tuple[bool, str]:
-    """The one line on rows that listwise deletion left out for a missing answer, and whether it is a caution
-    (first in every view): more than :data:`LISTWISE_WARNING_SHARE` of the rows read, whose loss may bias the
-    estimates unless the answers are missing completely at random (Little & Rubin 2002).  ``instead`` names
-    what would use every answer they have."""
-    if dropped > LISTWISE_WARNING_SHARE * read:
-        return True, (f"listwise deletion left out {dropped} of {read} rows{where} ({100 * dropped / read:.0f}%) "
-                      f"because they miss an answer on a model variable; {instead} would use every answer they have, "
-                      f"and the rows left out may differ from those kept")
-    return False, (f"{dropped} of {read} rows{where} had a missing answer on a model variable and were left out "
-                   f"(listwise deletion); {analysed} rows were analysed")
+def listwise_problem(dropped: int, read: int, where: str = "",
+                     instead: str = FULL_INFORMATION_INSTEAD) -> Problem | None:
+    """The caution on rows that listwise deletion left out for a missing answer, first in every view of every
+    command: more than :data:`LISTWISE_WARNING_SHARE` of the rows read, whose loss may bias the estimates unless the
+    answers are missing completely at random (Little & Rubin 2002); None for fewer.  ``instead`` names what would
+    use every answer they have."""
+    if dropped <= LISTWISE_WARNING_SHARE * read:
+        return None
+    return Problem(ProblemKind.ROWS_LEFT_OUT, (), float(dropped),
+                   f"Listwise deletion left out {dropped} of {read} rows{where} ({100 * dropped / read:.0f}%) because "
+                   f"they miss an answer on a model variable, and the rows left out may differ from those kept.",
+                   f"{instead} would use every answer they have.")
+
+
+def listwise_line(dropped: int, read: int, analysed: int, where: str = "") -> str:
+    """The note on fewer rows left out listwise than :func:`listwise_problem` cautions about."""
+    return (f"{dropped} of {read} rows{where} had a missing answer on a model variable and were left out "
+            f"(listwise deletion); {analysed} rows were analysed")
 
 
 def rows_left_out(groups, missing: MissingData | None,
-                  instead: str = FULL_INFORMATION_INSTEAD) -> tuple[list[str], list[str]]:
+                  instead: str = FULL_INFORMATION_INSTEAD) -> tuple[tuple[Problem, ...], list[str]]:
     """(cautions, notes) on the rows a fit left out, from ``groups``: (label or None, rows left out, rows read,
-    rows analysed) of each group; listwise deletion by :func:`listwise_line`, otherwise (full-information ML,
-    pairwise present rows) the rows that answered none of the model variables, in a note."""
-    cautions: list[str] = []
+    rows analysed) of each group; listwise deletion by :func:`listwise_problem` (or, for few rows,
+    :func:`listwise_line`), otherwise (full-information ML, pairwise present rows) the rows that answered none of
+    the model variables, in a note."""
+    cautions: list[Problem] = []
     notes: list[str] = []
     for label, dropped, read, analysed in groups:
         if not dropped:
             continue
         where = f" in group '{label}'" if label is not None else ""
         if missing is MissingData.LISTWISE or missing is None:
-            caution, line = listwise_line(dropped, read, analysed, where, instead)
-            (cautions if caution else notes).append(line)
+            caution = listwise_problem(dropped, read, where, instead)
+            if caution is not None:
+                cautions.append(caution)
+            else:
+                notes.append(listwise_line(dropped, read, analysed, where))
         else:
             notes.append(f"{dropped} of {read} rows{where} answered none of the model variables and were left out")
-    return cautions, notes
+    return tuple(cautions), notes
 
 
 def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Estimation, options: FitOptions,
@@ -252,9 +262,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         standardized[sel], factors_standardized[sel] = standardize_entries(mats[g], codes, rows, cols, values[sel],
                                                                            layout)
 
-    cautions, notes = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs) for label, m in groups],
-                                    options.missing)
-    warnings: list[str] = cautions + notes
+    left_out, warnings = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs) for label, m in groups],
+                                       options.missing)  # cautions first in every view, notes among the warnings
     fit = None
     robust = None
     inference = None
@@ -318,7 +327,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             check_information_rank(evaluation.information, table.free_labels)
     small, small_notes = group_size_problems(table, [m.n_obs for _, m in groups])
     warnings.extend(small_notes)
-    problems = small + tuple(solution_problems(
+    problems = left_out + small + tuple(solution_problems(
         table, mats, theta, cov_theta if est.converged else None, est.converged, est.message, options.max_iterations))
 
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized)

@@ -38,7 +38,7 @@ from cfa_tool.model.implied import StructuredModel, entry_derivatives
 from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
-from cfa_tool.pipeline.continuous import PAIRWISE_INSTEAD, estimate_rows, listwise_line
+from cfa_tool.pipeline.continuous import PAIRWISE_INSTEAD, estimate_rows, listwise_line, listwise_problem
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.pipeline.results import DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
@@ -127,12 +127,22 @@ def _pair_rows(moments, order: list[int]) -> tuple[tuple[str, str, int], ...]:
                  for i in range(len(order)) for j in range(i + 1, len(order)))
 
 
+def _left_out(moments, where: str = "") -> tuple:
+    """The caution on the rows listwise deletion left out (pipeline.continuous.listwise_problem), first in every
+    view; () with pairwise present rows or few rows left out (:func:`_rows_notes` then says them)."""
+    if moments.pairwise or not moments.rows_dropped:
+        return ()
+    found = listwise_problem(moments.rows_dropped, moments.rows_read, where, PAIRWISE_INSTEAD)
+    return (found,) if found is not None else ()
+
+
 def _rows_notes(moments, order: list[int], where: str = "") -> list[str]:
-    """What happened to rows with missing answers, in one line (nothing when no analysed row has a gap)."""
+    """What happened to rows with missing answers, in one line (nothing when no analysed row has a gap, or when
+    :func:`_left_out` cautions about them)."""
     if not moments.pairwise:
-        if not moments.rows_dropped:
+        if not moments.rows_dropped or _left_out(moments, where):
             return []
-        return [listwise_line(moments.rows_dropped, moments.rows_read, len(moments.codes), where, PAIRWISE_INSTEAD)[1]]
+        return [listwise_line(moments.rows_dropped, moments.rows_read, len(moments.codes), where)]
     out = []
     if moments.rows_dropped:
         out.append(f"{moments.rows_dropped} of {moments.rows_read} rows{where} answered no model variable and were left out")
@@ -272,8 +282,8 @@ def fit_ordinal(spec: Spec, moments, options, method: Weighting | str = Weightin
             mi, epc = least_squares_score_tests(D, D_cand, R[pairs] - sigma[pairs], weights, gamma, n)
             modification = _modification_rows([cands], mi, epc, lambda g: final, lambda g: None)
         warnings.append(ORDINAL_NOTE)
-    problems = solution_problems(table, [final], theta, cov_theta if opt.converged else None, opt.converged, message,
-                                 options.max_iterations)
+    problems = _left_out(moments) + tuple(solution_problems(table, [final], theta, cov_theta if opt.converged else None,
+                                                            opt.converged, message, options.max_iterations))
     derived = frozenset(e for e, par in enumerate(table.parameters)
                         if par.kind == "residual_variance" and par.variables[0] in derived_items)
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized, derived) + _first_step_thresholds(moments,
@@ -512,7 +522,8 @@ def assess_ordinal_groups(spec: Spec, groups: list, est: OrdinalEstimation, opti
         warnings.append(ORDINAL_NOTE)
     small, small_notes = group_size_problems(table, [m.n_obs for m in moments])
     warnings.extend(small_notes)
-    problems = small + tuple(solution_problems(
+    left_out = sum((_left_out(m, f" in group {label}") for (label, _), m in zip(groups, moments)), ())
+    problems = left_out + small + tuple(solution_problems(
         table, list(mats), theta, cov_theta if est.converged else None, est.converged, est.message, options.max_iterations))
     estimates = estimate_rows(table, values, inference, standardized, factors_standardized)
     group_results = []

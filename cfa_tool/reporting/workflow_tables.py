@@ -193,14 +193,9 @@ def comparison_report(comparison) -> Report:
                 lowest.setdefault(name, []).append(index)
     problems += [f"The lowest {' and '.join(indices)} belong{'s' if len(indices) == 1 else ''} to {name}, whose solution "
                  f"is not admissible: that is no reason to prefer it." for name, indices in lowest.items()]
-    total = comparison.n_obs + comparison.rows_dropped
     cautions = [p.line() for p in comparison.problems]  # the data's, first
     cautions += _design_caution_lines(named) + _caution_lines(named)
     full_information = comparison.missing is MissingData.FULL_INFORMATION
-    if comparison.rows_dropped > 0.05 * total and not (full_information or comparison.missing is MissingData.PAIRWISE):
-        cautions.append(f"{comparison.rows_dropped} of {total} rows ({100 * comparison.rows_dropped / total:.0f}%) miss an "
-                        f"answer on some model's variables and are left out of every model, so that all are compared on "
-                        f"the same rows; the rows left out may differ from those kept.")
     pairwise = comparison.missing is MissingData.PAIRWISE
     if full_information or pairwise:
         left = (f"{comparison.rows_dropped} rows answering none of some model's variables left out" if

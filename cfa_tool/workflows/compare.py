@@ -23,7 +23,9 @@ from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import OptionError, estimation_of
 from cfa_tool.options import group_column
 from cfa_tool.estimation.ml import NormalLikelihood
-from cfa_tool.pipeline.continuous import fit_moments, full_information_likelihood, model_structure, ordered_moments
+from cfa_tool.pipeline.continuous import (FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, fit_moments,
+                                          full_information_likelihood, listwise_problem, model_structure,
+                                          ordered_moments)
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import ORDINAL_FIT_CHANGE, FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
@@ -180,7 +182,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             found = _compare_ordinal(specs, names, complete, source, group, reference_group,
                                      replace(fit_options, missing=None if pairwise else MissingData.LISTWISE),
                                      ordinal_items, ordinal_estimator, dropped, design, pairwise, notes,
-                                     _data_problems(loaded, specs, group, design, complete))
+                                     _data_problems(loaded, specs, group, design, complete, dropped, fit_options.missing,
+                                                    pairwise, True))
             reference_group_applies(found.results, reference_group)
             return replace(found, results=tuple(with_missing_reading(r, loaded, missing_codes) for r in found.results),
                            without_group=without_group)
@@ -198,19 +201,26 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         reference_group_applies(results, reference_group)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
         return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
-                          fit_options.missing, tuple(notes), _data_problems(loaded, specs, group, design, complete, results),
+                          fit_options.missing, tuple(notes), _data_problems(loaded, specs, group, design, complete, dropped,
+                                                                                  fit_options.missing, False, False, results),
                           without_group=without_group)
 
 
-def _data_problems(loaded, specs, group, design, complete, results=()) -> tuple:
+def _data_problems(loaded, specs, group, design, complete, dropped: int, missing, pairwise: bool, ordinal: bool,
+                   results=()) -> tuple:
     """The cautions on the data of every model compared (pipeline.inputs.data_problems, as fit gives them), each
-    once: the items judged by each model's fit of the rows compared (``complete``), those of no fit by the rows."""
+    once: the items judged by each model's fit of the rows compared (``complete``), those of no fit by the rows;
+    then the ``dropped`` rows listwise deletion left out of every model (pipeline.continuous.listwise_problem)."""
     found: list = []
     for k, spec in enumerate(specs):
         r = results[k] if k < len(results) else None
         coverage = (r.missing_data or {}).get("coverage", {}) if r is not None else {}
         found += data_problems(loaded, spec, group, design, names=tuple(spec.observed_names), coverage=coverage,
                                n_obs=r.n_obs if r is not None else len(complete))
+    if missing is not MissingData.FULL_INFORMATION and not pairwise and dropped:  # after the data's, as in fit
+        left = listwise_problem(dropped, len(complete) + dropped, " from every model",
+                                PAIRWISE_INSTEAD if ordinal else FULL_INFORMATION_INSTEAD)
+        found += [left] if left is not None else []
     return tuple(dict.fromkeys(found))
 
 

@@ -406,9 +406,11 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
 def _rows_left_out(configural: FitResult) -> tuple[list[str], list[str]]:
     """(cautions, notes) on the rows the ladder left out for gaps, in fit's words (pipeline.continuous.rows_left_out),
     from its configural fit: every step is fitted to the same rows."""
-    return rows_left_out([(g.label, g.data.rows_dropped, g.data.rows_read, g.data.n_obs) for g in configural.groups],
-                         configural.method.missing,
-                         PAIRWISE_INSTEAD if configural.method.ordinal else FULL_INFORMATION_INSTEAD)
+    cautions, notes = rows_left_out([(g.label, g.data.rows_dropped, g.data.rows_read, g.data.n_obs)
+                                     for g in configural.groups],
+                                    configural.method.missing,
+                                    PAIRWISE_INSTEAD if configural.method.ordinal else FULL_INFORMATION_INSTEAD)
+    return [p.line() for p in cautions], notes
 
 
 def unsound_basis(steps, k: int):

@@ -36,7 +36,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.model.parameters import one_group_only
-from cfa_tool.pipeline.inputs import (load_data_for, load_spec, make_options, missing_codes_option, odd_value_problems,
+from cfa_tool.pipeline.inputs import (data_problems, load_data_for, load_spec, make_options, missing_codes_option,
                                       odd_values_named, refit_missing_handling, screened)
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.answer_words import code_answer_words, coding_json, coding_record
@@ -45,7 +45,7 @@ from cfa_tool.data.moments import SampleMoments, row_numbers, sample_moments
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, EstimationError, OptionError, estimation_of, printable
 from cfa_tool.numerics.linalg import log_det_pd
-from cfa_tool.pipeline.continuous import fit_moments
+from cfa_tool.pipeline.continuous import FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, fit_moments, listwise_problem
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import MissingData, Weighting
 from cfa_tool.pipeline.results import FitResult, clean
@@ -302,9 +302,20 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
         else:
             result = replicate_moments(spec, _moments(spec, cal_frame, cal_source, missing),
                                        _moments(spec, val_frame, val_source, missing), **options)
-    return replace(result, data_problems=sum((odd_value_problems(s) for s in screens), ()),
+    left_out = tuple(p for r, source in ((result.calibration_result, cal_source), (result.loose, val_source))
+                     for p in _left_out(r.data.rows_dropped, r.data.rows_read, source, r.method.missing, ordinal_items))
+    return replace(result, data_problems=tuple(dict.fromkeys(p for s in screens for p in data_problems(s, spec))) + left_out,
                    notes=tuple(dict.fromkeys(n for file_notes in notes for n in file_notes)),
                    answer_coding=coding_record(spec))
+
+
+def _left_out(dropped: int, read: int, source: str, missing, ordinal_items) -> tuple:
+    """The caution on the rows of ``source`` that listwise deletion left out (pipeline.continuous.listwise_problem,
+    as fit gives it) when ``missing`` is listwise; () otherwise or for few rows."""
+    if missing is not MissingData.LISTWISE or not dropped:
+        return ()
+    found = listwise_problem(dropped, read, f" of {source}", PAIRWISE_INSTEAD if ordinal_items else FULL_INFORMATION_INSTEAD)
+    return (found,) if found is not None else ()
 
 
 def _words_coded(spec: Spec, loaded, missing_codes=()) -> tuple:
@@ -333,10 +344,12 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     screen = screened(frame, spec.observed_names, source, loaded.non_answers, loaded.cautions)
     with odd_values_named(screen):
         pair, halves = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)
-    problems = odd_value_problems(screen)
     split = pair[0].calibration_result.n_obs + pair[0].loose.n_obs
     rows = SplitRows(split, len(frame), split < len(frame.dropna(subset=list(spec.observed_names), how="all")),
                      *halves)
+    # the rows left out before the split (the halves hold complete rows only): fit's caution, after the data's
+    problems = data_problems(screen, spec) + _left_out(len(frame) - split, len(frame), source,
+                                                       MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
     return tuple(replace(rep, data_problems=problems, split=rows, notes=notes, answer_coding=coding_record(spec))
                  for rep in pair)
 

@@ -100,7 +100,7 @@ def test_fiml_is_less_biased_than_listwise_under_mar():
     var_listwise = [r.estimate for r in listwise.estimates if r.kind == "factor_variance"][0]
     assert abs(var_fiml - 1.0) < 0.08
     assert abs(var_listwise - 1.0) > 0.2
-    assert any("listwise deletion" in w for w in listwise.warnings)
+    assert any("Listwise deletion" in p.explanation for p in listwise.problems)
 
 
 def test_modification_indices_with_incomplete_data(hs_holes):
@@ -211,7 +211,7 @@ def test_rows_with_gaps_are_kept_by_default(hs_holes):
                for w in default.warnings)
     listwise = cfa_tool.fit(THREE_FACTORS, hs_holes, missing="listwise")
     assert listwise.n_obs < 130
-    assert listwise.warnings[0].startswith(f"listwise deletion left out {301 - listwise.n_obs} of 301 rows")
+    assert listwise.problems[0].explanation.startswith(f"Listwise deletion left out {301 - listwise.n_obs} of 301 rows")
     found = cfa_tool.check(THREE_FACTORS, hs_holes)
     assert (found.rows, found.complete, found.with_gaps, found.empty) == (301, listwise.n_obs, 301 - listwise.n_obs, 0)
     assert all(0.8 < share < 1 for share in found.coverage.values())

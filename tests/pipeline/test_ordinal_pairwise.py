@@ -107,8 +107,9 @@ def test_listwise_only_when_asked():
     assert pairwise.n_obs == 500 and listwise.n_obs == complete < 400
     assert listwise.method.missing is MissingData.LISTWISE and listwise.data.pair_rows == ()
     # over a twentieth of the rows: a caution first, as for continuous items, naming what would keep them
-    assert listwise.warnings[0].startswith(f"listwise deletion left out {500 - complete} of 500 rows")
-    assert "pairwise present rows (the default for ordinal items" in listwise.warnings[0]
+    assert listwise.problems[0].explanation.startswith(f"Listwise deletion left out {500 - complete} of 500 rows")
+    assert "pairwise present rows (the default for ordinal items" in listwise.problems[0].line()
+    assert not any("listwise deletion" in w.lower() for w in listwise.warnings)  # said once, in the cautions
     assert pairwise.missing_data["coverage"] == pytest.approx(data.notna().mean().to_dict())  # shares by pandas
     note = next(w for w in pairwise.warnings if "pairwise present rows" in w)
     assert f"only the {complete} complete rows" in note

@@ -15,6 +15,7 @@ import pytest
 from docx.oxml.ns import qn
 
 import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import WARNINGS, sentence
 from cfa_tool.reporting.docx_report import report_docx
@@ -39,7 +40,8 @@ def troubled(hs_data):
     data.loc[data.index[:40], "x1"] = np.nan
     data.loc[data.index[50:55], "x2"] = -99
     result = cfa_tool.fit(HEYWOOD, data, missing="listwise", missing_codes=(-99,))
-    assert not result.admissible and any(w.startswith("listwise deletion left out 45") for w in result.warnings)
+    assert not result.admissible and any(p.kind is ProblemKind.ROWS_LEFT_OUT and p.explanation.startswith(
+        "Listwise deletion left out 45") for p in result.problems)
     return result
 
 
@@ -121,14 +123,19 @@ def test_every_view_of_a_fit_shows_the_same_notices_and_tables_in_the_same_order
     assert views["terminal"] == views["summary"]
 
 
-def test_the_data_cautions_come_right_under_the_title(troubled):
+def test_the_data_cautions_come_first_in_the_caution_box(troubled):
+    # the rows left out listwise: in the box of problems and cautions of every format, before the title (it was
+    # only among the notes under the title, which the other commands' boxes did not match)
     report = fit_report(troubled)
     first_table = report.tables[0].title
-    for text in (report_text(report, 100), report_markdown(report), _word_text(report_docx(report, 72))):
-        text = _plain(text)
+    for text in (report_text(report, 100), report_markdown(report), _word_text(report_docx(report, 72)),
+                 _html_text(report_html(report))):
+        text = _plain(html.unescape(text))
         listwise = text.index("Listwise deletion left out 45 of 301 rows")  # (as a sentence: document.sentence)
-        assert text.index(report.title) < listwise < text.index(first_table)
-        assert listwise < text.index("A confirmatory factor analysis")  # before the methods paragraph
+        assert listwise < text.index(report.title) < text.index(first_table)
+        assert text.count("Listwise deletion left out 45 of 301 rows") == 1  # not again among the notes
+    assert any(line.startswith("Listwise deletion left out 45") for line in report.notice.lines)
+    assert any(p["kind"] == ProblemKind.ROWS_LEFT_OUT.value for p in troubled.to_dict()["problems"])
 
 
 def test_the_word_report_holds_the_normality_tests_and_the_warnings(troubled):
