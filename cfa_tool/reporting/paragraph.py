@@ -478,9 +478,24 @@ def _reverse_keyed_sentence(d) -> str:
     return _capital("; ".join(parts)) + "." if parts else ""
 
 
-def _scale_sentences(d) -> list[str]:
-    """The items declared reverse-keyed, then how each factor got its scale (what the declaration changed in it)."""
-    found = [_reverse_keyed_sentence(d), _scale_sentence(d) if d.scales else "", _method_scale_sentence(d)]
+def _unreached_sentence(d, problems) -> str:
+    """That no answer reached an end of a declared reverse-keyed scale, when the data's cautions say so
+    (pipeline.inputs.scale_ends_problems; ``problems``: the cautions of the fit, comparison or ladder): the keyed sums'
+    means then depend on the scale declared, which a paragraph stating that scale must not leave out."""
+    unreached = [p for p in problems if p.kind is ProblemKind.SCALE_ENDS_UNREACHED]
+    if not d.reverse_keyed or not unreached:
+        return ""
+    both = any(p.value == 2 for p in unreached)
+    scale = "that declared scale" if len(d.reverse_keyed) == 1 else "a declared scale"
+    return (f"No answer of the items it covers reached {'either end' if both else 'an end'} of {scale}, so the means "
+            f"of the keyed sums depend on the scale declared (their spread, correlations and omega do not).")
+
+
+def _scale_sentences(d, problems=()) -> list[str]:
+    """The items declared reverse-keyed (with the ends of their declared scale that no answer reached, among
+    ``problems``), then how each factor got its scale (what the declaration changed in it)."""
+    found = [_reverse_keyed_sentence(d), _unreached_sentence(d, problems), _scale_sentence(d) if d.scales else "",
+             _method_scale_sentence(d)]
     return [sentence for sentence in found if sentence]
 
 
@@ -597,7 +612,7 @@ def methods_paragraph(result) -> str:
     if d is not None:
         parts.append(f"A confirmatory factor analysis with {_structure(result, d)} was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
-        parts += _scale_sentences(d)
+        parts += _scale_sentences(d, result.problems)
         if d.exploratory:
             parts.append(_block_sentences(result, d))
         departures = _departures(d)
@@ -695,7 +710,7 @@ def _model_sentences(name: str, result) -> str:
     d = result.description
     if d is None:
         return f"{name} had {_count(len(result.observed), 'indicator')}."
-    parts = [f"{name} had {_structure(result, d).rstrip(',')}."] + _scale_sentences(d)
+    parts = [f"{name} had {_structure(result, d).rstrip(',')}."] + _scale_sentences(d, result.problems)
     departures = _departures(d)
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))
@@ -927,7 +942,7 @@ def invariance_paragraph(result, levels) -> str:
         parts.append(f"The configural model had {_structure(first, d).rstrip(',')}, with the same pattern in every "
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
                      f"{_name(result.groups[0])} were fixed at zero.")
-        parts += _scale_sentences(d)
+        parts += _scale_sentences(d, getattr(result, "data_problems", ()))
         departures = _departures(d)
         if departures:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))

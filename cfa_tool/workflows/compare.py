@@ -13,7 +13,8 @@ from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missin
                                       data_problems, odd_values_named, reference_group_applies, with_missing_reading,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_row_options, summary_source, with_design)
-from cfa_tool.data.answer_words import code_answer_words, refuse_different_codings, refuse_for_summary_statistics
+from cfa_tool.data.answer_words import (code_answer_words, coding_json, refuse_different_codings,
+                                        refuse_for_summary_statistics)
 from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import row_numbers
@@ -55,7 +56,7 @@ class Comparison(Presentable):
     # full-information ML, every row answering some of each model's variables
     missing: MissingData = MissingData.LISTWISE
     notes: tuple[str, ...] = ()
-    problems: tuple = ()  # of the data: values that look like no answers (assessment.admissibility.Problem)
+    problems: tuple = ()  # of the data, first in every view (pipeline.inputs.data_problems; assessment.admissibility.Problem)
     without_group: int = 0  # rows left out for having no value in the group column (not in rows_dropped)
 
     @property
@@ -90,6 +91,10 @@ class Comparison(Presentable):
             "design": self.results[0].design.to_dict() if self.results[0].design is not None else None,
             "not_nested": [dict(first=n.first, second=n.second, reason=n.reason,
                                 information_criteria_comparable=n.information_criteria) for n in self.not_nested],
+            # how the models coded answers recorded as words (one coding for all: refuse_different_codings), as fit's
+            # JSON has it
+            **({"data": {"answer_coding": coding_json(self.results[0].data.answer_coding)}}
+               if getattr(self.results[0].data, "answer_coding", ()) else {}),
         }
 
 
@@ -181,10 +186,9 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         if ordinal_items:
             found = _compare_ordinal(specs, names, complete, source, group, reference_group,
                                      replace(fit_options, missing=None if pairwise else MissingData.LISTWISE),
-                                     ordinal_items, ordinal_estimator, dropped, design, pairwise, notes,
-                                     _data_problems(loaded, specs, group, design, complete, dropped, fit_options.missing,
-                                                    pairwise, True))
+                                     ordinal_items, ordinal_estimator, dropped, design, pairwise, notes)
             reference_group_applies(found.results, reference_group)
+            found = _with_data_problems(found, loaded, specs, group, design, dropped, pairwise, True)
             return replace(found, results=tuple(with_missing_reading(r, loaded, missing_codes) for r in found.results),
                            without_group=without_group)
         results = []
@@ -200,32 +204,34 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                            if design is not None else result)
         reference_group_applies(results, reference_group)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
-        return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
-                          fit_options.missing, tuple(notes), _data_problems(loaded, specs, group, design, complete, dropped,
-                                                                                  fit_options.missing, False, False, results),
-                          without_group=without_group)
+        return _with_data_problems(Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested),
+                                              len(complete), dropped, fit_options.missing, tuple(notes),
+                                              without_group=without_group),
+                                   loaded, specs, group, design, dropped, False, False)
 
 
-def _data_problems(loaded, specs, group, design, complete, dropped: int, missing, pairwise: bool, ordinal: bool,
-                   results=()) -> tuple:
-    """The cautions on the data of every model compared (pipeline.inputs.data_problems, as fit gives them), each
-    once: the items judged by each model's fit of the rows compared (``complete``), those of no fit by the rows;
-    then the ``dropped`` rows listwise deletion left out of every model (pipeline.continuous.listwise_problem)."""
-    found: list = []
-    for k, spec in enumerate(specs):
-        r = results[k] if k < len(results) else None
-        coverage = (r.missing_data or {}).get("coverage", {}) if r is not None else {}
-        found += data_problems(loaded, spec, group, design, names=tuple(spec.observed_names), coverage=coverage,
-                               n_obs=r.n_obs if r is not None else len(complete))
-    if missing is not MissingData.FULL_INFORMATION and not pairwise and dropped:  # after the data's, as in fit
-        left = listwise_problem(dropped, len(complete) + dropped, " from every model",
+def _with_data_problems(found: Comparison, loaded, specs, group, design, dropped: int, pairwise: bool,
+                        ordinal: bool) -> Comparison:
+    """The comparison with the cautions on the data (pipeline.inputs.data_problems, as fit gives them): each model's
+    own before its problems (its declared scales, its items judged by its fit's coverage), and all of them once in
+    the comparison's, then the ``dropped`` rows listwise deletion left out of every model
+    (pipeline.continuous.listwise_problem)."""
+    results, found_all = [], []
+    for r, spec in zip(found.results, specs):
+        coverage = (r.missing_data or {}).get("coverage", {})
+        own = data_problems(loaded, spec, group, design, names=tuple(spec.observed_names), coverage=coverage,
+                            n_obs=r.n_obs)
+        found_all += own
+        results.append(replace(r, problems=tuple(p for p in own if p not in r.problems) + tuple(r.problems)))
+    if found.missing is not MissingData.FULL_INFORMATION and not pairwise and dropped:  # after the data's, as in fit
+        left = listwise_problem(dropped, found.n_obs + dropped, " from every model",
                                 PAIRWISE_INSTEAD if ordinal else FULL_INFORMATION_INSTEAD)
-        found += [left] if left is not None else []
-    return tuple(dict.fromkeys(found))
+        found_all += [left] if left is not None else []
+    return replace(found, results=tuple(results), problems=tuple(dict.fromkeys(found_all)))
 
 
 def _compare_ordinal(specs, names, complete, source, group, reference_group, fit_options, ordinal_items, method,
-                     dropped, design=None, pairwise: bool = False, notes=(), problems=()) -> Comparison:
+                     dropped, design=None, pairwise: bool = False, notes=()) -> Comparison:
     from cfa_tool.workflows.ordinal_compare import fit_ordinal_models, ordinal_difference_test
 
     estimations, results = fit_ordinal_models(specs, complete, source, group, reference_group, fit_options,
@@ -238,7 +244,7 @@ def _compare_ordinal(specs, names, complete, source, group, reference_group, fit
 
     tests, not_nested = _each_pair(names, results, test_pair, specs, likelihood=False)
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), len(complete), dropped,
-                      MissingData.PAIRWISE if pairwise else MissingData.LISTWISE, tuple(notes), tuple(problems))
+                      MissingData.PAIRWISE if pairwise else MissingData.LISTWISE, tuple(notes))
 
 
 def _compare_summary(specs, names, path, fit_options, group) -> Comparison:

@@ -17,6 +17,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.answer_words import coding_json
 from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_category_notes,
                                       make_options, moments_for, data_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
@@ -200,10 +201,14 @@ class InvarianceResult(Presentable):
     means_not_estimated: tuple[str, ...] = ()  # higher-order factors whose means stay fixed at 0 in every group
     #: what reading the data did (rows left out, labels read, missing-data handling): notes, not cautions
     notes: tuple[str, ...] = ()
+    #: the cautions on the data (pipeline.inputs.data_problems), whose lines open ``warnings``
+    data_problems: tuple = ()
 
     def to_dict(self) -> dict:
+        first = self.steps[0].result
         return {
             "warnings": list(self.warnings),
+            "data_problems": [p.to_dict() for p in self.data_problems],
             "notes": list(self.notes),
             "group_column": self.group_column,
             "groups": list(self.groups),
@@ -217,6 +222,8 @@ class InvarianceResult(Presentable):
             "latent_differences": [d.to_dict() for d in self.latent_differences],
             "latent_differences_note": self.latent_note,
             "means_not_estimated": list(self.means_not_estimated),
+            # how the model coded answers recorded as words, as fit's JSON has it
+            **({"data": {"answer_coding": coding_json(first.data.answer_coding)}} if first.data.answer_coding else {}),
         }
 
 
@@ -256,7 +263,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     frame, source = loaded.frame, loaded.source
     # values that look like no answers, among the rows with a group label: first among the cautions
     analysed = analysed_odd_values(loaded, spec, group)
-    data_cautions = tuple(p.line() for p in data_problems(analysed, spec, group, design))  # as fit gives them
+    found = data_problems(analysed, spec, group, design)  # as fit gives them
+    data_cautions = tuple(p.line() for p in found)
     if spec.invariant:
         where = spec.equalities_location
         raise ModelError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "
@@ -323,7 +331,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 left_out, left_notes = _rows_left_out(steps[0].result)
                 return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
                                         data_cautions + tuple(left_out) + (stopped,), rule,
-                                        notes=tuple(notes) + tuple(left_notes))
+                                        notes=tuple(notes) + tuple(left_notes), data_problems=found)
             with threads:
                 test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
             # an inadmissible solution (negative variances, ...) cannot show that invariance holds, whatever its fit;
@@ -400,7 +408,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     # groups with fewer rows than their configural model's free parameters: every step's comparison rests on them
     small = tuple(f"Group {p.group}: {p.line()}" for p in steps[0].result.problems if p.kind is ProblemKind.SMALL_GROUP)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + small + tuple(warnings), rule,
-                            differences, latent_note, not_estimated, tuple(notes))
+                            differences, latent_note, not_estimated, tuple(notes), found)
 
 
 def _rows_left_out(configural: FitResult) -> tuple[list[str], list[str]]:
