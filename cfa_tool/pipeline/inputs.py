@@ -640,12 +640,6 @@ def scale_ends_problems(frame: pd.DataFrame, spec: Spec) -> tuple:
     return tuple(out)
 
 
-def with_same_answer_rows(result, frame: pd.DataFrame, spec: Spec, ids: dict):
-    """``result`` (anything with ``problems``) with :func:`same_answer_problems` first (said once)."""
-    found = tuple(p for p in same_answer_problems(frame, spec, ids) if p not in result.problems)
-    return replace(result, problems=found + tuple(result.problems)) if found else result
-
-
 #: an item answered by fewer than this share of the rows analysed is named in a caution first: its variance and
 #: covariances rest on those few answers (a rule of thumb of this project, not a published cutoff)
 FEW_ANSWERS_SHARE = 0.10

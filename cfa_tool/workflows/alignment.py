@@ -614,7 +614,7 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
     with blas_threads_for(len(spec.observed_names)), odd_values_named(loaded):  # one thread: small matrices (numerics.threads)
         result = _align(spec, frame, source, group, reference_group, variant, flag_level, trials, seed, missing,
                         max_iterations, notes)
-    result = replace(result, configural=with_odd_values(result.configural, loaded, group))
+    result = replace(result, configural=with_odd_values(result.configural, loaded, group, spec))
     if not loaded.row_filters:
         return result
     data = replace(result.configural.data, row_filters=loaded.row_filters, rows_in_file=len(loaded.read_frame))

@@ -549,7 +549,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
                               f"apply; leave out the design")
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
             result = with_odd_values(_fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator),
-                                     loaded)
+                                     loaded, None, spec)
         return bootstrap_fit(result, spec, numeric_columns(frame, result.observed, source), replications, seed,
                              bollen_stine, False, workers, scheduler, progress)
     if design is not None:
@@ -570,7 +570,7 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     result = replace(result, warnings=tuple(notes) + result.warnings)  # what reading and the row filters did
     if design is not None:
         result = with_design(result, design_summary(frame, design, [moments]))
-    result = with_odd_values(result, loaded)
+    result = with_odd_values(result, loaded, None, spec, design)
     order = [moments.names.index(n) for n in result.observed]
     return bootstrap_fit(result, spec, moments.rows[:, order], replications, seed, bollen_stine, bca, workers, scheduler,
                          progress, moments.design)

@@ -334,7 +334,7 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
         with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
             result = _fit_rows(spec, loaded, notes, None, None, FitOptions(), ordinal, ordinal_estimator)
-        return fit_cutoffs(spec, with_odd_values(result, loaded), replications, seed, workers, scheduler, progress)
+        return fit_cutoffs(spec, with_odd_values(result, loaded, None, spec), replications, seed, workers, scheduler, progress)
     handling, missing_notes = refit_missing_handling(frame, spec.observed_names, missing)
     moments = sample_moments(frame, spec.observed_names, source, missing=handling)
     with odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
@@ -343,5 +343,5 @@ def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replicati
     patterns = None
     if handling is MissingData.FULL_INFORMATION:
         patterns = ~np.isnan(moments.rows[:, [moments.names.index(n) for n in result.observed]])
-    return fit_cutoffs(spec, with_odd_values(result, loaded), replications, seed, workers, scheduler, progress,
+    return fit_cutoffs(spec, with_odd_values(result, loaded, None, spec), replications, seed, workers, scheduler, progress,
                        patterns)

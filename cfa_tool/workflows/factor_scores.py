@@ -309,10 +309,9 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
             why = problem.phrase() if problem is not None else result.message
             raise EstimationError(f"the fitted solution is not admissible ({why}), so no factor scores are written; "
                                   f"run 'fit' to see its problems")
-    result = api.with_odd_values(result, loaded)
-    # rows that gave one answer to every item, reverse-worded ones included: named first, scored like every row
-    if spec.reversed:
-        result = api.with_same_answer_rows(result, api._labelled(frame, group), spec, ids_by_row_number(ids, read_frame))
+    # the data's cautions as fit gives them (rows that gave one answer to every item, reverse-worded ones included,
+    # named by their ids: scored like every row)
+    result = api.with_odd_values(result, loaded, group, spec, design, ids_by_row_number(ids, read_frame))
     fitted_rows = _fitted_rows(frame, design, spec, group, source)
     if ordinal_items:
         chosen = (ScoreMethod.EXPECTED_A_POSTERIORI,)
