@@ -365,7 +365,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                       bool(standard_errors or ordinal_items), answered)
     columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
                                        len(read_index))
-    table = pd.DataFrame(columns)
+    table = pd.DataFrame(columns, index=read_index)  # a data frame's own index: scores join to its rows
     if id_name is not None and id_name in list(table.columns)[1:]:
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
@@ -558,7 +558,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
-    return ScoreResult(result, chosen, tuple(factors), id_name, pd.DataFrame(columns), tuple(quality),
+    return ScoreResult(result, chosen, tuple(factors), id_name, pd.DataFrame(columns, index=read_frame.index),
+                       tuple(quality),
                        unscored, with_errors, tuple(notes), source, tuple(warnings))
 
 

@@ -219,3 +219,23 @@ def test_the_precision_note_names_the_standard_error_column_only_when_written():
     with_se = cfa_tool.scores(THREE_FACTORS, data, standard_errors=True)
     assert any(c.endswith("_se") for c in with_se.table.columns)
     assert "the _se column of the file" in precision_table(with_se, 0).note
+
+
+def test_the_scores_table_keeps_the_index_of_the_data_frame_scored():
+    """A subset, a reversed frame, a frame indexed by ids: the scores table has the frame's index, so pandas joins
+    each row's scores to that row (they were numbered 0..n-1, and frame.join(table) gave rows other rows' scores).
+    The reference: the scores of the whole frame, taken at the subset's index labels."""
+    import cfa_tool
+    from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+    data = holzinger_swineford()
+    fitted = cfa_tool.fit(THREE_FACTORS, data)
+    whole = fitted.scores(data).table
+    subset = data[data["school"] == "Pasteur"].iloc[::-1]
+    for table in (fitted.scores(subset).table, cfa_tool.scores(THREE_FACTORS, data).table.loc[subset.index]):
+        assert list(table.index) == list(subset.index)
+        joined = subset.join(table)
+        assert np.allclose(joined["visual_regression"], whole.loc[subset.index, "visual_regression"], rtol=0, atol=0)
+    by_id = cfa_tool.scores(THREE_FACTORS, data.set_index("id")).table
+    assert list(by_id.index) == list(data["id"])
+    assert "id" not in by_id.columns
