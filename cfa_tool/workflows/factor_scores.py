@@ -466,6 +466,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                                                      (id_column,) if isinstance(id_column, str) else ())
     frame, source = loaded.frame, loaded.source
     read_frame = loaded.read_frame if loaded.read_frame is not None else frame
+    if not len(read_frame):
+        raise DataError(f"{source} has no rows to score")
     if not read_frame.index.is_unique:
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index)")
     group = result.group_column

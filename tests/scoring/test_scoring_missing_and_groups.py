@@ -239,3 +239,14 @@ def test_the_scores_table_keeps_the_index_of_the_data_frame_scored():
     by_id = cfa_tool.scores(THREE_FACTORS, data.set_index("id")).table
     assert list(by_id.index) == list(data["id"])
     assert "id" not in by_id.columns
+
+
+def test_a_frame_of_no_rows_is_an_error_not_an_empty_table():
+    """Scoring no rows (a filter that kept none) is said, never an empty table returned without a word."""
+    import cfa_tool
+    from cfa_tool.errors import DataError
+    from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+    data = holzinger_swineford()
+    with pytest.raises(DataError, match="has no rows to score"):
+        cfa_tool.fit(THREE_FACTORS, data).scores(data[data["school"] == "none"])
