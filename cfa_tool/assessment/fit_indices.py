@@ -29,6 +29,10 @@ import numpy as np
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import log_det_pd, spd_inverse
 
+#: The guide values the reports print beside the indices and the configural step of an invariance test is judged by
+#: (Hu & Bentler 1999; common practice, not laws): CFI and TLI at least these, RMSEA and SRMR at most these.
+GUIDE_VALUES = {"cfi": 0.95, "tli": 0.95, "rmsea": 0.06, "srmr": 0.08}
+
 
 @dataclass(frozen=True)
 class IndicesOfOneTest:

@@ -24,16 +24,27 @@ COMMON_SCALES: tuple[tuple[str, ...], ...] = (
 )
 
 
-def suggested_statement(values: np.ndarray) -> str | None:
-    """The 'answers' statement to write for a column whose words (case and surrounding spaces aside) all come from
-    one common agreement, frequency or satisfaction scale, in the scale's order with the words as the file writes
-    them (numbers among them aside); None otherwise.  Only a suggestion: it is never applied without the statement."""
+#: a column of more distinct words than this is not shown as answer words (free text, names)
+MOST_WORDS_SHOWN = 12
+
+
+def distinct_words(values: np.ndarray) -> list[str]:
+    """The distinct words of a column (case and surrounding spaces aside; numbers and empty cells left out), as the
+    file first writes each, in the order they first appear."""
     written: dict[str, str] = {}
     for value in values:
         if isinstance(value, str) and value.strip() and strict_number(value.strip()) is None:
             written.setdefault(answer_key(value), value.strip())
-        # numbers among the words (a means row, a bad export) do not decide the scale; the statement's own check
-        # names them when it is written
+    return list(written.values())
+
+
+def suggested_statement(values: np.ndarray) -> str | None:
+    """The 'answers' statement to write for a column whose words (case and surrounding spaces aside) all come from
+    one common agreement, frequency or satisfaction scale, in the scale's order with the words as the file writes
+    them (numbers among them aside); None otherwise.  Only a suggestion: it is never applied without the statement."""
+    # numbers among the words (a means row, a bad export) do not decide the scale; the statement's own check names
+    # them when it is written
+    written = {answer_key(w): w for w in distinct_words(values)}
     if not written:
         return None
     keyed = [(scale, [answer_key(w) for w in scale]) for scale in COMMON_SCALES]

@@ -150,10 +150,21 @@ def _listed_answers(coding: AnswerCoding) -> tuple:
 
 def coding_described(answers: tuple) -> str:
     """(word, number, code) triples in words: '1 (Strongly disagree) to 5 (Strongly agree)' when the codes are
-    distinct whole numbers one apart, else each code with its answers ('0 (No), 1 (Yes, Often)')."""
+    distinct whole numbers one apart, else each code with its answers ('0 (No), 1 (Yes, Often)'); numbers listed as
+    their own code (a file mixing words and numbers) are said apart: '...; the numbers 0 to 4 kept their values'."""
+    kept = sorted(number for word, number, code in answers if word is None and number == code)
     by_code: dict[float, list[str]] = {}
     for word, number, code in answers:
+        if word is None and number == code:
+            continue
         by_code.setdefault(code, []).append(printable(word) if word is not None else f"{number:g}")
+    if kept:
+        numbers = (f"the number {kept[0]:g} kept its value" if len(kept) == 1 else
+                   f"the numbers {kept[0]:g} to {kept[-1]:g} kept their values"
+                   if kept == [kept[0] + k for k in range(len(kept))] else
+                   f"the numbers {', '.join(f'{k:g}' for k in kept)} kept their values")
+        return f"{coding_described(tuple(a for a in answers if not (a[0] is None and a[1] == a[2])))}; {numbers}" \
+            if by_code else numbers
     codes = sorted(by_code)
     run = len(codes) > 2 and all(len(by_code[c]) == 1 for c in codes) and codes == [codes[0] + k for k in range(len(codes))]
     if run:
@@ -178,10 +189,13 @@ def answer_notes(spec: Spec, coded: tuple[str, ...] | None = None) -> list[str]:
         by_code: dict[float, list[str]] = {}
         for answer in coding.answers:
             by_code.setdefault(answer.code, []).append(answer.shown)
-        for code, shared in by_code.items():
-            if len(shared) > 1:
-                notes.append(f"the answers {' and '.join(repr(printable(w)) for w in shared)} share the code {code:g} "
-                             f"({coding.origin}), so they are analysed as one answer")
+        shared = [f"{' and '.join(repr(printable(w)) for w in words)} share the code {code:g}"
+                  for code, words in by_code.items() if len(words) > 1]
+        if shared:
+            notes.append(f"the answers {'; '.join(shared)} ({coding.origin}), so each "
+                         f"{'set' if any(len(w) > 2 for w in by_code.values()) else 'pair'} is analysed as one answer"
+                         if len(shared) > 1 else
+                         f"the answers {shared[0]} ({coding.origin}), so they are analysed as one answer")
         for answer in coding.answers:  # the statement decides: such a word is an answer, and the report says so
             if answer.word is not None and says_no_answer(answer.word):
                 notes.append(f"'{printable(answer.word)}', a word that usually means no answer, is analysed as the "
@@ -243,7 +257,9 @@ def with_saved_coding(spec: Spec, record: tuple, source: str) -> Spec:
 
 
 def _comparable(record: tuple) -> set:
-    return {(item, tuple(sorted(((answer_key(w) if w is not None else None), n, c) for w, n, c in answers)))
+    """Per item, the set of (word key or None for a listed number, number, code) a coding lists (a set: a statement
+    may list numbers beside words, which do not sort together)."""
+    return {(item, frozenset(((answer_key(w) if w is not None else None), n, c) for w, n, c in answers))
             for items, answers in record for item in items}
 
 

@@ -12,7 +12,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.answer_scales import suggested_statement
+from cfa_tool.data.answer_scales import MOST_WORDS_SHOWN, distinct_words, suggested_statement
 from cfa_tool.errors import DataError, EstimationError, printable
 from cfa_tool.method import MissingData
 from cfa_tool.numbers import number as strict_number
@@ -192,8 +192,15 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
 def _statement_hint(values: np.ndarray) -> str:
     """The 'answers' statement that would code a column of one common scale's words (a suggestion only)."""
     statement = suggested_statement(values)
-    return "" if statement is None else (f"; or, if these are the answers of one scale in this order, say what each "
-                                         f"word means with a line in the model file: {statement}")
+    if statement is not None:
+        return (f"; or, if these are the answers of one scale in this order, say what each word means with a line in "
+                f"the model file: {statement}")
+    words = distinct_words(values)
+    if not 2 <= len(words) <= MOST_WORDS_SHOWN:
+        return ""
+    return (f"; or, if the column's words ({', '.join(repr(printable(w)) for w in words)}) are the answers of one "
+            f"scale, code each with an 'answers' statement in the model file, from the lowest answer up: "
+            f"answers \"...\" = 1, \"...\" = 2, and so on (the tool never orders words by itself)")
 
 
 #: an answer written as its code and its label: '5 - strongly agree', '2: rarely', '1) never'

@@ -72,3 +72,16 @@ def csv_cell(value) -> str:
         except ValueError:
             return "'" + text
     return text
+
+
+def decimals_beside(value: float, limit: float | None, digits: int = 3, most: int = 6) -> int:
+    """The decimals ``value`` needs to print on the side of ``limit`` it lies on: ``digits``, or more when rounding to
+    ``digits`` would print it at the limit or across it (an RMSEA of .0605 judged against a guide of .06 prints as
+    .0605, not .060, which a reader would take to meet it); ``most`` at most."""
+    if limit is None or not math.isfinite(value):
+        return digits
+    for d in range(digits, most + 1):
+        shown = round(value, d)
+        if (shown > limit) == (value > limit) and (shown < limit) == (value < limit):
+            return d
+    return most

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import math
 
+from cfa_tool.numerics.plain import decimals_beside
+
 
 def missing(value) -> bool:
     return value is None or (isinstance(value, float) and not math.isfinite(value))
@@ -17,10 +19,12 @@ def num(value, digits: int = 3) -> str:
     return text.lstrip("-") if float(text) == 0.0 else text
 
 
-def unit(value, digits: int = 3) -> str:
-    """A value bounded by 1 in size without its leading zero (.931), as journals print indices."""
+def unit(value, digits: int = 3, beside: float | None = None) -> str:
+    """A value bounded by 1 in size without its leading zero (.931), as journals print indices; ``beside``: a guide
+    value the reader compares it with, which it then prints on the right side of (:func:`decimals_beside`)."""
     if missing(value):
         return ""
+    digits = decimals_beside(value, beside, digits)
     text = f"{value:.{digits}f}"
     if float(text) == 0.0:
         text = text.lstrip("-")
@@ -31,10 +35,10 @@ def unit(value, digits: int = 3) -> str:
     return text
 
 
-def index_text(value, digits: int = 3) -> str:
+def index_text(value, digits: int = 3, beside: float | None = None) -> str:
     """A fit index as :func:`unit` prints it, or 'not defined' where its formula has no value (e.g. a TLI whose
     baseline model fits no worse per degree of freedom than the model), never an empty place in a sentence."""
-    return "not defined" if missing(value) else unit(value, digits)
+    return "not defined" if missing(value) else unit(value, digits, beside)
 
 
 def p_value(value) -> str:
@@ -51,11 +55,12 @@ def p_phrase(p) -> str:
     return text if text.startswith(("<", ">")) else f"= {text}"
 
 
-def signed(value, digits: int = 3) -> str:
-    """A change bounded by 1 in size with its sign and without its leading zero (+.026, -.035)."""
+def signed(value, digits: int = 3, beside: float | None = None) -> str:
+    """A change bounded by 1 in size with its sign and without its leading zero (+.026, -.035); ``beside`` as for
+    :func:`unit`."""
     if missing(value):
         return ""
-    text = unit(value, digits)
+    text = unit(value, digits, beside)
     return text if text.startswith("-") else "+" + text
 
 

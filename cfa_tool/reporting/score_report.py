@@ -133,8 +133,9 @@ def precision_table(result, k: int) -> ReportTable | None:
                  f"median of their posterior SDs (each row's own is the _posterior_sd column of the file), which "
                  f"depends on the answers: {levels}. ")
     else:
-        first = (f"For {METHOD_LABELS[method]} scores with every item answered (each row's own standard error is "
-                 f"the _se column of the file). ")
+        own = ("each row's own standard error is the _se column of the file" if result.standard_errors else
+               "each row's own standard error is written to the file when standard errors are asked for")
+        first = f"For {METHOD_LABELS[method]} scores with every item answered ({own}). "
     sds = ", ".join(f"{p.factor} {num(p.factor_sd, 2)}" for p in found)
     first += (f"Scores, SEs and bands are in each factor's units as the model scales it (the factor's standard "
               f"deviation: {sds}). ")

@@ -15,6 +15,7 @@ from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod,
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import _parameter, comparison_paragraph, design_sentence, invariance_paragraph
+from cfa_tool.assessment.fit_indices import GUIDE_VALUES
 from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit, word_list
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
@@ -280,21 +281,27 @@ def _level_fit_cells(result, adjusted: bool) -> tuple[list[str], list]:
         return ["did not converge", "", "", "", ""], [None] * 6
     if adjusted and robust is not None:  # ordinal items: the adjusted statistic and robust indices
         return ([f"{robust.chi_square_scaled:.2f} ({robust.df})", p_value(robust.p_value_scaled),
-                 unit(robust.cfi_robust), unit(robust.rmsea_robust), unit(fit.srmr)],
+                 unit(robust.cfi_robust, beside=GUIDE_VALUES["cfi"]), unit(robust.rmsea_robust, beside=GUIDE_VALUES["rmsea"]),
+                 unit(fit.srmr, beside=GUIDE_VALUES["srmr"])],
                 [robust.chi_square_scaled, robust.df, robust.p_value_scaled, robust.cfi_robust, robust.rmsea_robust,
                  fit.srmr])
-    return ([f"{fit.chi_square:.2f} ({fit.df})", p_value(fit.p_value), unit(fit.cfi), unit(fit.rmsea), unit(fit.srmr)],
+    return ([f"{fit.chi_square:.2f} ({fit.df})", p_value(fit.p_value), unit(fit.cfi, beside=GUIDE_VALUES["cfi"]),
+             unit(fit.rmsea, beside=GUIDE_VALUES["rmsea"]), unit(fit.srmr, beside=GUIDE_VALUES["srmr"])],
             [fit.chi_square, fit.df, fit.p_value, fit.cfi, fit.rmsea, fit.srmr])
 
 
-def _step_cells(t, delta_srmr) -> tuple[list[str], list]:
-    return ([f"{t.chi_square_difference:.2f} ({t.df_difference})", p_value(t.p_value), signed(t.delta_cfi),
-             signed(t.delta_rmsea), "" if delta_srmr is None else signed(delta_srmr)],
+def _step_cells(t, delta_srmr, level: str) -> tuple[list[str], list]:
+    """A step's difference test and changes in fit, each change printed on the side of its guide it lies on."""
+    from cfa_tool.workflows.invariance import CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER
+
+    return ([f"{t.chi_square_difference:.2f} ({t.df_difference})", p_value(t.p_value),
+             signed(t.delta_cfi, beside=CFI_GUIDE), signed(t.delta_rmsea, beside=RMSEA_GUIDE),
+             "" if delta_srmr is None else signed(delta_srmr, beside=SRMR_GUIDE.get(level, SRMR_GUIDE_LATER))],
             [t.chi_square_difference, t.df_difference, t.p_value, t.delta_cfi, t.delta_rmsea, delta_srmr])
 
 
-CONFIGURAL_GUIDE = ("The configural model holds when it fits by the guide values (CFI >= .95, RMSEA <= .06, SRMR <= .08; "
-                    "Hu & Bentler 1999).")
+CONFIGURAL_GUIDE = (f"The configural model holds when it fits by the guide values (CFI >= {short(GUIDE_VALUES['cfi'])}, "
+                    f"RMSEA <= {short(GUIDE_VALUES['rmsea'])}, SRMR <= {short(GUIDE_VALUES['srmr'])}; Hu & Bentler 1999).")
 CONFIGURAL_NOTE = (f"{CONFIGURAL_GUIDE} Change-in-fit guides are common practice: CFI falling by no more than .010 "
                    "(Cheung & Rensvold 2002), RMSEA rising by less than .015, SRMR by less than .030 for loadings and "
                    ".010 after (Chen 2007). All guides are conventions, not laws.")
@@ -399,7 +406,7 @@ def invariance_report(result) -> Report:
             if step.full_test is not None:
                 before = result.steps[result.steps.index(step) - 1].result
                 srmr = step.full_result.fit.srmr - before.fit.srmr
-                cells, values = _step_cells(step.full_test, srmr)
+                cells, values = _step_cells(step.full_test, srmr, step.level)
                 steps.append([f"{step.level} ({first_fit})", *cells, _verdict(step.full_holds, step.full_result)])
                 step_values.append([f"{step.level} ({first_fit})", *values, _verdict(step.full_holds, step.full_result)])
         cells, values = _level_fit_cells(step.result, adjusted)
@@ -410,7 +417,7 @@ def invariance_report(result) -> Report:
         verdict = (TEST_MET if step.holds and unsound_basis(result.steps, k) is not None
                    else _verdict(step.holds, step.result)) + (" *" if step.conditional else "")
         if step.versus_previous is not None:
-            cells, values = _step_cells(step.versus_previous, step.delta_srmr)
+            cells, values = _step_cells(step.versus_previous, step.delta_srmr, step.level)
             steps.append([label, *cells, verdict])
             step_values.append([label, *values, verdict])
         else:

@@ -364,7 +364,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                       bool(standard_errors or ordinal_items), answered)
     columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
                                        len(read_index))
-    table = pd.DataFrame(columns)
+    table = pd.DataFrame(columns, index=read_index)  # a data frame's own index: scores join to its rows
     if id_name is not None and id_name in list(table.columns)[1:]:
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
@@ -381,7 +381,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                      f"parameters, whatever its weight")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
-                       bool(standard_errors or ordinal_items), tuple(extra), warnings=tuple(own))
+                       bool(standard_errors or ordinal_items), tuple(extra),
+                       warnings=tuple(centred_in_each_group(result.estimates) + own))
 
 
 def models_of_fit(result: FitResult) -> tuple[list, list]:
@@ -464,6 +465,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                                                      (id_column,) if isinstance(id_column, str) else ())
     frame, source = loaded.frame, loaded.source
     read_frame = loaded.read_frame if loaded.read_frame is not None else frame
+    if not len(read_frame):
+        raise DataError(f"{source} has no rows to score")
     if not read_frame.index.is_unique:
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index)")
     group = result.group_column
@@ -524,7 +527,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors, answered)
     columns = _with_same_answer_column(columns, id_name, spec, base.items, rows, position.loc[frame.index].to_numpy(), n)
-    warnings = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal)
+    warnings = centred_in_each_group(result.estimates) + _without_own_answers_note(models, labels, rows, group_of_row,
+                                                                                  group, factors, ordinal)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     scored_problems = []  # first in every view, before the fit's own (the rows scored are this run's data)
@@ -555,7 +559,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
-    return ScoreResult(result, chosen, tuple(factors), id_name, pd.DataFrame(columns), tuple(quality),
+    return ScoreResult(result, chosen, tuple(factors), id_name, pd.DataFrame(columns, index=read_frame.index),
+                       tuple(quality),
                        unscored, with_errors, tuple(notes), source, tuple(warnings))
 
 
@@ -977,6 +982,34 @@ def _ordinal_precision(base, v: np.ndarray, e: np.ndarray, answered: np.ndarray,
         precision.append(Precision.of(name, ScoreMethod.EXPECTED_A_POSTERIORI, factor_sd[f], reliability[f], se))
         by_level.append((name, float(np.median(sd[s <= low])), float(np.median(sd[s >= high]))))
     return tuple(precision), tuple(by_level)
+
+
+def centred_in_each_group(estimates) -> list[str]:
+    """The caution on scores of several groups whose factor means the model fixes at zero in every group (no
+    intercepts held equal): each group's scores are then centred at 0 in that group's own units, and a difference
+    between two groups' scores says nothing about their factor means.  ``estimates``: a fit's estimate rows, or a
+    saved fit's (which keep no free flag: a mean of exactly 0 in every group is taken as fixed)."""
+    groups = {r.group for r in estimates if r.group is not None}
+    if len(groups) < 2:
+        return []
+    set_free: dict[str, bool] = {}
+    for r in estimates:
+        if r.kind == "mean":
+            free = getattr(r, "free", None)
+            set_free[r.variables[0]] = set_free.get(r.variables[0], False) or bool(free) or r.estimate != 0
+    centred = [f for f, free in set_free.items() if not free]
+    if not centred:
+        return []
+    if len(centred) == len(set_free):
+        return ["The scores of different groups cannot be compared: the model fixes every factor's mean at zero in "
+                "every group (its intercepts are not held equal across groups), so each group's scores are centred at "
+                "0 in that group's own units, and the groups' average scores are 0 whatever their factor means.  "
+                "Compare groups only with scores of a model that holds loadings and intercepts equal ('invariance "
+                "scalar'), once the invariance command supports that level."]
+    names, one = ", ".join(printable(f) for f in centred), len(centred) == 1
+    return [f"The scores of different groups cannot be compared on {names}: the model fixes {'its' if one else 'their'} "
+            f"mean at zero in every group, so each group's scores of {'it' if one else 'them'} are centred at 0 in "
+            f"that group's own units."]
 
 
 def _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal) -> list[str]:

@@ -23,6 +23,8 @@ from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ord
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
                                       with_missing_reading, with_rows_read)
 from cfa_tool.assessment.admissibility import ProblemKind, group_size_problems
+from cfa_tool.assessment.fit_indices import GUIDE_VALUES
+from cfa_tool.numerics.plain import decimals_beside
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
@@ -64,9 +66,9 @@ STOP_OFF = "no search was asked for"
 STOP_NOTHING_LEFT = ("no equality left that may be freed (one loading and one intercept per factor stay equal, so "
                      "that factor scales and means remain comparable)")
 STOP_CAP = "the search reached its limit of {cap} freed parameters at this step"
-#: The configural model is judged on its own fit, by the report's guide values (Hu & Bentler 1999; common
-#: practice, not laws): CFI at least .95, RMSEA at most .06, SRMR at most .08
-CONFIGURAL_GUIDES = {"cfi": 0.95, "rmsea": 0.06, "srmr": 0.08}
+#: The configural model is judged on its own fit, by the report's guide values (assessment.fit_indices.GUIDE_VALUES:
+#: CFI at least .95, RMSEA at most .06, SRMR at most .08)
+CONFIGURAL_GUIDES = {k: GUIDE_VALUES[k] for k in ("cfi", "rmsea", "srmr")}
 PARTIAL_CHOICES = ("none", "auto")
 MAX_FREED_PER_STEP = 10
 SEARCH_WARNING = (
@@ -375,8 +377,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     warnings = []
     if not steps[0].holds and steps[0].result.admissible:
         fit = _fit_values(steps[0].result)
-        warnings.insert(0, "the configural model does not fit by the guide values (" + ", ".join(
-            f"{k.upper()} {_decimal(v)}" for k, v in fit.items()) + "): every later step compares models that already "
+        warnings.insert(0, "the configural model does not fit by the guide values (" + _judged(fit) + "): every "
+            "later step compares models that already "
             "misfit, so its test says little about invariance; first find out why the model misfits (fit it in each "
             "group alone and read the modification indices and residuals), then test invariance")
     elif any(s.conditional for s in steps):
@@ -586,10 +588,25 @@ def _total_moments(result: FitResult, higher: dict, rows: dict, factor: str, gro
     return mean, float(g.latent_covariance[i, i])
 
 
-def _decimal(value: float) -> str:
-    """Three decimals without the leading zero of a value below 1, as journals print fit indices."""
-    text = f"{value:.3f}"
+def _decimal(value: float, beside: float | None = None) -> str:
+    """Three decimals without the leading zero of a value below 1, as journals print fit indices (more when it lies
+    so near ``beside``, a guide value, that three would print it on the wrong side: numerics.plain.decimals_beside)."""
+    text = f"{value:.{decimals_beside(value, beside)}f}"
     return text[1:] if text.startswith("0.") else text
+
+
+def _judged(fit: dict[str, float]) -> str:
+    """The indices of :func:`_fit_values` against :data:`CONFIGURAL_GUIDES`, those that miss theirs first:
+    'RMSEA .0605, above .06; CFI .951 and SRMR .046 meet theirs'."""
+    below = ("cfi",)  # a higher value fits better
+    missed = [k for k, v in fit.items() if (v < CONFIGURAL_GUIDES[k] if k in below else v > CONFIGURAL_GUIDES[k])]
+    guide = {k: _decimal(g).rstrip("0") for k, g in CONFIGURAL_GUIDES.items()}
+    said = [f"{k.upper()} {_decimal(fit[k], CONFIGURAL_GUIDES[k])}, {'below' if k in below else 'above'} {guide[k]}"
+            for k in missed]
+    met = [f"{k.upper()} {_decimal(v, CONFIGURAL_GUIDES[k])}" for k, v in fit.items() if k not in missed]
+    if met:
+        said.append(f"{' and '.join(met)} {'meets its' if len(met) == 1 else 'meet theirs'}")
+    return "; ".join(said)
 
 
 def _fit_values(result: FitResult) -> dict[str, float]:

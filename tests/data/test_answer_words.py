@@ -361,3 +361,61 @@ def test_replication_reads_the_data_as_fit_does(tmp_path):
     with pytest.raises(OptionError, match="--missing-codes 5 is an answer of the scale 1 to 5"):
         cfa_tool.replicate(PLAIN + "reversed quiet on 1 to 5\n", tmp_path / "numbers.csv", numbers.iloc[:150],
                            missing_codes=[5])
+
+
+def test_a_statement_listing_numbers_beside_words_serves_every_command(files, tmp_path, capsys):
+    """Two language versions in one file: one version's answers are words, the other's numbers, and the statement
+    lists both (the numbers as their own codes).  compare and scores --from-fit compared such codings by sorting
+    words and numbers together (a TypeError, exit 1); each now runs and gives the fit of the numbers."""
+    numbers = _answers()
+    frame = numbers.copy()
+    frame["seat"] = frame["seat"].astype(object)
+    half = frame.index[::2]
+    frame.loc[half, "seat"] = numbers.loc[half, "seat"].map(WORDS)
+    frame.to_csv(tmp_path / "mixed.csv", index=False)
+    statement = ('answers "Strongly disagree" = 1, "Disagree" = 2, "Neither agree nor disagree" = 3, "Agree" = 4, '
+                 '"Strongly agree" = 5, 1 = 1, 2 = 2, 3 = 3, 4 = 4, 5 = 5 for seat\n')
+    (tmp_path / "a.cfa").write_text(PLAIN + statement)
+    (tmp_path / "b.cfa").write_text(PLAIN + "covary seat, clean\n" + statement)
+    assert main(["compare", str(tmp_path / "a.cfa"), str(tmp_path / "b.cfa"), "--data", str(tmp_path / "mixed.csv"),
+                 "--json", str(tmp_path / "cmp.json")]) == 0
+    assert main(["fit", str(tmp_path / "a.cfa"), "--data", str(tmp_path / "mixed.csv"), "--json",
+                 str(tmp_path / "fit.json")]) == 0
+    assert main(["scores", str(tmp_path / "a.cfa"), "--from-fit", str(tmp_path / "fit.json"), "--data",
+                 str(tmp_path / "mixed.csv"), "--output", str(tmp_path / "s.csv")]) == 0
+    capsys.readouterr()
+    result = cfa_tool.fit(PLAIN + statement, frame)
+    assert np.allclose(result.theta, cfa_tool.fit(PLAIN, numbers).theta, rtol=0, atol=1e-10)
+    # one note for the shared codes of the statement, and the numbers said apart from the words
+    shared = [w for w in result.warnings if "share the code" in w]
+    assert shared == ["the answers 'Strongly disagree' and '1' share the code 1; 'Disagree' and '2' share the code 2; "
+                      "'Neither agree nor disagree' and '3' share the code 3; 'Agree' and '4' share the code 4; "
+                      "'Strongly agree' and '5' share the code 5 (the 'answers' statement on line 3), so each pair is "
+                      "analysed as one answer"]
+    assert any("coded 1 (Strongly disagree) to 5 (Strongly agree); the numbers 1 to 5 kept their values in 1 item "
+               "(seat)" in w for w in result.warnings)
+    # a differing coding is still refused by compare
+    (tmp_path / "c.cfa").write_text(PLAIN + statement.replace(", 5 = 5", ", 5 = 4"))
+    assert main(["compare", str(tmp_path / "a.cfa"), str(tmp_path / "c.cfa"), "--data",
+                 str(tmp_path / "mixed.csv")]) == 2
+    assert "read the answers of 'seat' differently" in capsys.readouterr().err
+
+
+def test_words_of_no_common_scale_are_pointed_to_the_statement(tmp_path, capsys):
+    """Answer words of a scale the tool does not know (another language) get the pointer to the 'answers'
+    statement with the column's words, never an order of its own; free text (many words) does not."""
+    numbers = _answers()
+    frame = numbers.copy()
+    own = {1: "Nie", 2: "Selten", 3: "Manchmal", 4: "Oft", 5: "Immer"}
+    frame["seat"] = numbers["seat"].map(own)
+    frame.to_csv(tmp_path / "de.csv", index=False)
+    (tmp_path / "m.cfa").write_text(PLAIN)
+    assert main(["check", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "de.csv")]) == 2
+    err = capsys.readouterr().err
+    assert "code each with an 'answers' statement in the model file, from the lowest answer up" in err
+    first = [own[int(v)] for v in dict.fromkeys(numbers["seat"])]
+    assert "the column's words (" + ", ".join(repr(w) for w in first) + ")" in err
+    frame["seat"] = [f"comment {k}" for k in range(len(frame))]
+    frame.to_csv(tmp_path / "text.csv", index=False)
+    assert main(["check", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "text.csv")]) == 2
+    assert "'answers' statement" not in capsys.readouterr().err

@@ -174,3 +174,79 @@ def test_scores_from_a_full_information_fit_use_its_intercepts_and_each_rows_ans
         mean, sd = _posterior(model, rows[i])
         np.testing.assert_allclose(out.scores[i], mean, atol=1e-10)
         np.testing.assert_allclose(out.standard_errors[i], sd, atol=1e-10)
+
+
+def test_scores_of_groups_whose_means_the_model_fixes_are_said_not_to_compare(tmp_path):
+    """Holzinger & Swineford (1939), by school.  Without intercepts held equal, the model fixes each school's factor
+    means at zero, so each school's regression scores average (about) zero in that school, whatever the schools'
+    true means: the scores report says first that they cannot be compared.  With 'invariance scalar' the Pasteur
+    means are estimated and the schools' average scores differ; no such caution then."""
+    import cfa_tool
+    from cfa_tool.cli import main
+    from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+    data = holzinger_swineford()
+    configural = cfa_tool.scores(THREE_FACTORS, data, group="school")
+    by_school = configural.table.filter(like="_regression").groupby(data["school"].to_numpy()).mean()
+    assert np.abs(by_school.to_numpy()).max() < 0.05  # pandas' group means of the written scores
+    assert configural.warnings[0].startswith("The scores of different groups cannot be compared: the model fixes "
+                                             "every factor's mean at zero in every group")
+    scalar = cfa_tool.scores(THREE_FACTORS + "invariance scalar\n", data, group="school")
+    by_school = scalar.table.filter(like="_regression").groupby(data["school"].to_numpy()).mean()
+    assert np.abs(by_school.loc["Pasteur"] - by_school.loc["Grant-White"]).max() > 0.3
+    assert not any("cannot be compared" in w for w in scalar.warnings)
+    # a saved fit scored again says so too (its means were estimated as exactly 0 in every group)
+    (tmp_path / "m.cfa").write_text(THREE_FACTORS)
+    data.to_csv(tmp_path / "hs.csv", index=False)
+    assert main(["fit", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "hs.csv"), "--group-column", "school",
+                 "--json", str(tmp_path / "fit.json")]) == 0
+    from cfa_tool.workflows.factor_scores import score_with_saved_fit
+
+    again = score_with_saved_fit(tmp_path / "m.cfa", tmp_path / "fit.json", tmp_path / "hs.csv")
+    assert any(w.startswith("The scores of different groups cannot be compared") for w in again.warnings)
+
+
+def test_the_precision_note_names_the_standard_error_column_only_when_written():
+    """Without standard errors asked for, the file has no _se column, and the note does not point to one."""
+    import cfa_tool
+    from cfa_tool.reporting.score_report import precision_table
+    from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+    data = holzinger_swineford()
+    without = cfa_tool.scores(THREE_FACTORS, data)
+    assert not any(c.endswith("_se") for c in without.table.columns)
+    assert "the _se column" not in precision_table(without, 0).note
+    with_se = cfa_tool.scores(THREE_FACTORS, data, standard_errors=True)
+    assert any(c.endswith("_se") for c in with_se.table.columns)
+    assert "the _se column of the file" in precision_table(with_se, 0).note
+
+
+def test_the_scores_table_keeps_the_index_of_the_data_frame_scored():
+    """A subset, a reversed frame, a frame indexed by ids: the scores table has the frame's index, so pandas joins
+    each row's scores to that row (they were numbered 0..n-1, and frame.join(table) gave rows other rows' scores).
+    The reference: the scores of the whole frame, taken at the subset's index labels."""
+    import cfa_tool
+    from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+    data = holzinger_swineford()
+    fitted = cfa_tool.fit(THREE_FACTORS, data)
+    whole = fitted.scores(data).table
+    subset = data[data["school"] == "Pasteur"].iloc[::-1]
+    for table in (fitted.scores(subset).table, cfa_tool.scores(THREE_FACTORS, data).table.loc[subset.index]):
+        assert list(table.index) == list(subset.index)
+        joined = subset.join(table)
+        assert np.allclose(joined["visual_regression"], whole.loc[subset.index, "visual_regression"], rtol=0, atol=0)
+    by_id = cfa_tool.scores(THREE_FACTORS, data.set_index("id")).table
+    assert list(by_id.index) == list(data["id"])
+    assert "id" not in by_id.columns
+
+
+def test_a_frame_of_no_rows_is_an_error_not_an_empty_table():
+    """Scoring no rows (a filter that kept none) is said, never an empty table returned without a word."""
+    import cfa_tool
+    from cfa_tool.errors import DataError
+    from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+    data = holzinger_swineford()
+    with pytest.raises(DataError, match="has no rows to score"):
+        cfa_tool.fit(THREE_FACTORS, data).scores(data[data["school"] == "none"])
