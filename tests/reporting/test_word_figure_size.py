@@ -92,3 +92,31 @@ def test_a_diagram_of_thirty_items_goes_on_in_strips(tmp_path):
     for picture in pictures:  # each strip across the landscape page, its labels larger than the whole drawing's
         assert abs(Emu(picture.width).inches - 8.5) < 0.01 or Emu(picture.height).inches <= 5.5 + 0.01
         assert _smallest_points(svg, Emu(picture.width).inches) > 1.1 * _smallest_points(svg, 6.0)
+
+
+def test_the_caption_the_drawing_and_its_note_are_kept_on_one_page():
+    # the note under the rider survey's diagram fell alone on a page of its own: the drawing filled the page's
+    # height with no room for the note.  Now the caption keeps with the picture and the picture with the note, and
+    # the picture is sized for the page's text height less the caption's and the note's lines (Times' widths).
+    from docx.shared import Emu as E
+
+    from cfa_tool.reporting.docx_report import _figure_room
+
+    report = fit_report(cfa_tool.fit(resource_dir("models") / "rider_three_factors.cfa",
+                                     resource_dir("demo") / "rider_survey.csv"))
+    document = docx.Document(io.BytesIO(report_docx(report, dpi=96)))
+    paragraphs = document.paragraphs
+    pictured = [k for k, p in enumerate(paragraphs) if p._p.findall(".//" + qn("wp:inline"))]
+    note = next(k for k, p in enumerate(paragraphs) if p.text.startswith("Note. Standardized values"))
+    assert note == pictured[-1] + 1
+    for k in pictured:  # 'Figure 1', its title, the picture: each kept with the next paragraph
+        assert paragraphs[k - 2].text.startswith("Figure 1")
+        assert paragraphs[k - 2].paragraph_format.keep_with_next and paragraphs[k - 1].paragraph_format.keep_with_next
+    assert paragraphs[pictured[-1]].paragraph_format.keep_with_next
+    section = next(s for s in document.sections if s.orientation == WD_ORIENT.LANDSCAPE)
+    text_height = E(section.page_height - section.top_margin - section.bottom_margin).inches
+    # the note's three lines and the caption's two at 12 pt: at least 5 lines of 12 pt (1/6 inch) kept free
+    room = _figure_room(document, report.figures[0].note)
+    assert room >= 5 / 6
+    for shape in document.inline_shapes:
+        assert E(shape.height).inches + room <= text_height + 1e-6
