@@ -47,7 +47,17 @@ RESIDUAL_R = 11
 BOX_GAP = 14  # between neighbouring items
 SIDE_GAP = 10  # between an item and its residual beside it
 MARGIN = 30.0
-MAX_WIDTH = 1000.0  # a band of items wider than this is broken into the next band (fits a page at about 6 pt)
+# Legibility rule: no text of a drawing prints below MIN_FIGURE_TEXT points.  Every text is at least SMALLEST_TEXT
+# units high, and a band of items is at most MAX_WIDTH units wide, so that a band set across the widest text area a
+# report gives it, PRINT_WIDTH inches (the Word report's landscape page: letter paper, 1.25 inch side margins),
+# prints its smallest text at SMALLEST_TEXT * 72 * PRINT_WIDTH / MAX_WIDTH >= MIN_FIGURE_TEXT points (1 pt = 1/72
+# inch).  The Word report cuts a drawing of several bands into strips between them (reporting.picture.svg_strips);
+# the HTML report shows it at one unit to a pixel up to its width (at least 900 pixels wide), so its smallest text
+# is at least 12 * 900 / MAX_WIDTH, about 10 pixels, at normal zoom.
+MIN_FIGURE_TEXT = 7.0  # points: journals' artwork guides ask for about 6 to 8 pt (common practice)
+SMALLEST_TEXT = 12  # units: the size of the values, the lists and the key
+PRINT_WIDTH = 8.5  # inches
+MAX_WIDTH = math.floor(SMALLEST_TEXT * 72 * PRINT_WIDTH / MIN_FIGURE_TEXT)  # 1049: wider bands break into the next
 BAND_GAP = 40.0
 # a factor whose items are wider than this is drawn in parts over several bands (a little wider than a band, it is
 # drawn whole: a slightly wider picture reads better than a factor cut in two)
@@ -90,7 +100,7 @@ def _ellipse_rx(name: str) -> float:
     return max(42.0, 4.4 * len(name) + 22.0)
 
 
-def _label(x: float, y: float, text: str, size: int = 11, anchor: str = "middle", cls: str = "value",
+def _label(x: float, y: float, text: str, size: int = SMALLEST_TEXT, anchor: str = "middle", cls: str = "value",
            problem: bool = False) -> str:
     colour = f' fill="{PROBLEM_COLOUR}" font-weight="bold"' if problem else ""
     return (f'<text class="{cls}{" problem" if problem else ""}" x="{x:.1f}" y="{y:.1f}" font-size="{size}" '
@@ -371,7 +381,7 @@ def _lists(lay: _Layout) -> list[list]:
     return [entries for entries in (lay.listed_loadings, lay.table) if entries]
 
 
-LIST_SIZE = 11  # font size of the lists above the drawing
+LIST_SIZE = SMALLEST_TEXT  # font size of the lists above the drawing and of the key
 
 
 def _entry_width(entries, shown=str) -> float:
@@ -440,7 +450,7 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
     key = [(short, name) for name, short in item_labels(result).items()]
     indent = TEXT_EM * LIST_SIZE * (max((len(short) for short, _ in key), default=0) + 1)  # from a label to its name
     key_column = indent + TEXT_EM * LIST_SIZE * max((len(name) for _, name in key), default=0) + 30  # with a gap
-    width = max([d.width for d in drawings] + [2 * MARGIN + TEXT_EM * 11 * len(line) for line in lines]
+    width = max([d.width for d in drawings] + [2 * MARGIN + TEXT_EM * SMALLEST_TEXT * len(line) for line in lines]
                 + ([2 * MARGIN + key_column] if key else []))
     key_columns = max(1, int((width - 2 * MARGIN) // key_column)) if key else 1
     key_rows = math.ceil(len(key) / key_columns)
@@ -480,7 +490,7 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
     red = any(Drawn.PROBLEM in d.drawn for d in drawings)
     for k, line in enumerate(lines):
         colour = f' fill="{PROBLEM_COLOUR}"' if red and k == len(lines) - 1 else ""
-        parts.append(f'<text class="legend" x="{MARGIN:.1f}" y="{y + 16 + 18 * k:.1f}" font-size="11"{colour}>{esc(line)}</text>')
+        parts.append(f'<text class="legend" x="{MARGIN:.1f}" y="{y + 16 + 18 * k:.1f}" font-size="{SMALLEST_TEXT}"{colour}>{esc(line)}</text>')
     parts.append("</svg>")
     return "\n".join(parts) + "\n"
 
@@ -635,16 +645,16 @@ def _draw(result, group: int) -> Drawing:
         if resid is not None:
             text = unit(resid.standardized, 2)
             if lay.side_residuals:
-                parts.append(_label(cx, cy - RESIDUAL_R - 5, text, size=10, problem=bad))
+                parts.append(_label(cx, cy - RESIDUAL_R - 5, text, problem=bad))
             else:
-                parts.append(_label(cx + RESIDUAL_R + 3, cy + 4, text, size=10, anchor="start", problem=bad))
+                parts.append(_label(cx + RESIDUAL_R + 3, cy + 4, text, anchor="start", problem=bad))
     parts.append("</g>")
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
     return Drawing(lay.width, lay.height + head, parts, [head + b for b in lay.breaks], frozenset(drawn))
 
 
-def _free_spot(spots: list[tuple[float, float]], text: str, placed: list, size: int = 11) -> tuple[float, float]:
+def _free_spot(spots: list[tuple[float, float]], text: str, placed: list, size: int = SMALLEST_TEXT) -> tuple[float, float]:
     """The first of ``spots`` (centre, baseline) where a label ``text`` covers none of the ``placed`` boxes (the
     first spot when none is free); its box is added to ``placed``.  Extent of a text as the layout tests estimate
     it: ``TEXT_EM`` per character, 1 em tall, with its white halo."""

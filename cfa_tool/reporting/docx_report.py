@@ -20,6 +20,7 @@ from docx.shared import Emu, Inches, Pt, RGBColor
 
 from cfa_tool.errors import printable
 from cfa_tool.reporting.column_parts import column_parts, label_columns
+from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT  # the smallest lettering of a figure in print
 from cfa_tool.reporting.picture import (DEFAULT_DPI, page_fit, png_converter, smallest_text, svg_size, svg_strips,
                                        svg_to_png)
 from cfa_tool.reporting.document import WARNINGS
@@ -117,9 +118,6 @@ def _room(document) -> float:
 
 
 LANDSCAPE_GAIN = 1.1  # a figure goes on a landscape page when it prints at least this much larger there
-# the smallest lettering of a figure in print, in points: journals' artwork guides ask for about 6 to 8 pt (common
-# practice); a figure whose labels would print smaller across a portrait page goes on a landscape page
-MIN_FIGURE_TEXT = 7.0
 # a line of the body text in points: 12 pt type at the default template's line spacing of 1.15 (w:line 276/240),
 # a line of Times being about 1.15 times its size (Times New Roman's ascent plus descent, recalled from memory);
 # PARAGRAPH_GAP is the space after a paragraph (the template's w:after 200 twentieths of a point)

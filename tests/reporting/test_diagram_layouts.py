@@ -214,13 +214,14 @@ def test_word_figures_fit_on_the_page(shapes):
     from docx import Document
     from docx.shared import Inches
 
-    from cfa_tool.reporting.docx_report import report_docx
+    from cfa_tool.reporting.docx_report import _figure_room, report_docx
     from cfa_tool.reporting.fit_document import fit_report
 
     from docx.oxml.ns import qn
 
     for shape, groups in (("small", 1), ("groups", 2), ("60 items", 1), ("method factor", 1)):
-        document = Document(io.BytesIO(report_docx(fit_report(shapes[shape]), 100)))
+        report = fit_report(shapes[shape])
+        document = Document(io.BytesIO(report_docx(report, 100)))
         pictures = document.inline_shapes
         # one figure per group; a drawing too large to print readably on one page goes on in strips, each under a
         # caption 'Figure n (continued)'
@@ -232,10 +233,13 @@ def test_word_figures_fit_on_the_page(shapes):
             if child.tag == qn("w:p"):
                 found += [k] * len(child.findall(".//" + qn("wp:inline")))
                 k += child.find(f"{qn('w:pPr')}/{qn('w:sectPr')}") is not None
-        for picture, s in zip(pictures, found):  # the width of its page's text area, unless that would run off the
-            section = document.sections[s]      # page's foot (less an inch for the caption and note)
+        figure = [int(c.split()[1]) - 1 for c in captions]  # the figure each picture belongs to
+        for picture, s, n in zip(pictures, found, figure):  # the width of its page's text area, unless that would run
+            section = document.sections[s]  # off the page's foot (less the room of the caption and the note)
             width = section.page_width - section.left_margin - section.right_margin
-            height = section.page_height - section.top_margin - section.bottom_margin - Inches(1)
+            room = _figure_room(document, report.figures[n].note)
+            assert room >= 5 / 6  # at least the caption's two lines and the note's three, 12 pt (1/6 inch) each
+            height = section.page_height - section.top_margin - section.bottom_margin - Inches(room)
             assert picture.width <= width + 1 and picture.height <= height + 1
             assert abs(picture.width - width) <= 1 or abs(picture.height - height) <= 1
     notes = [p.text for p in Document(io.BytesIO(report_docx(fit_report(shapes["method factor"]), 100))).paragraphs]
@@ -338,3 +342,20 @@ def test_the_legend_explains_only_what_the_drawing_shows(shapes, hs_data):
     one_factor = cfa_tool.fit("factor g: x1..x9\nscale latent by variance\n", hs_data)
     svg, legend = diagram_with_legend(one_factor)
     assert "curved" not in legend and "dashed" not in legend and "listed" not in legend
+
+
+@pytest.mark.parametrize("shape", ["60 items", "higher-order, 60 items", "bifactor, 48 items", "method factor, 40 items"])
+def test_a_big_model_prints_its_smallest_text_at_7_points_across_a_landscape_page(shapes, shape):
+    """The legibility rule of diagram.py: a drawing in bands is at most MAX_WIDTH units wide and no text is smaller
+    than SMALLEST_TEXT units, so across the Word report's landscape text width (8.5 inches: letter paper, less the
+    1.25 inch side margins python-docx's template gives) its smallest text prints at 7 pt or more (1 pt = 1/72
+    inch).  Before the rule, residual values were 10 units in bands 1000 wide: 6.1 pt."""
+    from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT, PRINT_WIDTH, SMALLEST_TEXT
+    from cfa_tool.reporting.picture import smallest_text
+
+    svg = diagram_file(shapes[shape])
+    root = ET.fromstring(svg)
+    assert root.get("data-breaks")  # drawn in bands
+    assert min(float(t.get("font-size")) for t in root.iter(SVG + "text")) >= SMALLEST_TEXT
+    assert MIN_FIGURE_TEXT == 7.0 and PRINT_WIDTH == 8.5
+    assert smallest_text(svg, 8.5) >= 7.0
