@@ -21,9 +21,14 @@ its factor correlations, and residual correlations that would join two bands,
 are then listed at the top of the drawing instead of arcs crossing the bands;
 so are correlations between a factor of the bottom row and one above it.  The
 factors whose lines would cross the bands (higher-order, general and method
-factors) are then drawn in a row of their own above the bands, and their
-loadings (and a cross-loading that would join two bands) are listed with the
-correlations.
+factors) are then drawn in a row of their own above the bands, under the lists.
+A higher-order factor keeps its arrows: straight down to its factors in the
+first band, and for those of later bands a line from the left of its ellipse
+down the left edge of the drawing and over the band to the top of each factor
+(each such factor's value beside it).  The loadings of general and method
+factors (one on every item), and a cross-loading that would join two bands, are
+listed with the correlations.  No text is drawn smaller than ``SMALLEST_TEXT``
+and no band wider than ``MAX_WIDTH``: the legibility rule stated there.
 Arcs between factors leave each ellipse at their own point of its top, so they
 do not all meet at one point.  The root element names the heights between bands
 (and between groups), where nothing is drawn, in ``data-breaks``: the Word report
