@@ -127,28 +127,26 @@ PICTURE_GAP = 6.0  # points after the picture's paragraph
 SLACK = 14.0  # points kept free on the page: the estimates above are not the word processor's own
 
 
-def _figure_room(document, note: str) -> float:
-    """Inches of a page's text height a figure's words take (no drawing): the caption's two lines, the note's
-    lines (estimated from Times' character widths across the text width, one more for the words that wrap
-    early), the space after each paragraph, and some slack; the drawing is sized for what is left, so that the
-    caption, the drawing and its note fit on one page (and are kept together there, keep-with-next)."""
-    note_lines = 0
-    if note:
-        across = 72.0 * _figure_areas(document)[0][0]  # the portrait text width: never fewer lines than there
-        note_lines = math.ceil(_text_width("Note. " + typeset(note), 12.0) / across) + 1
+def _figure_room(note: str, across: float) -> float:
+    """Inches of a page's text height a figure's words take (no drawing) on a page whose text is ``across`` inches
+    wide: the caption's two lines, the note's lines (estimated from Times' character widths, which are made a
+    little wider than they are), the space after each paragraph, and a line's slack; the drawing is sized for what
+    is left, so that the caption, the drawing and its note fit on one page (and are kept together there,
+    keep-with-next)."""
+    note_lines = math.ceil(_text_width("Note. " + typeset(note), 12.0) / (72.0 * across)) if note else 0
     points = 2 * LINE + PARAGRAPH_GAP + PICTURE_GAP + (note_lines * LINE + 12.0 if note else 0.0) + SLACK
     return points / 72.0
 
 
-def _figure_pieces(document, svg: str, room: float = 0.0) -> tuple[bool, list[str]]:
+def _figure_pieces(document, svg: str, note: str = "") -> tuple[bool, list[str]]:
     """How a figure is set: (on a landscape page, its drawing whole or in strips).  The first of: whole on a
     portrait page, whole on a landscape page, in strips on portrait pages, in strips on landscape pages, whose
     smallest text prints at least ``MIN_FIGURE_TEXT``; the strips are cut between the bands of a diagram of many
     items (picture.svg_strips), one under the other on following pages.  When none reaches that size, the one that
     prints largest, if at least ``LANDSCAPE_GAIN`` times larger than whole on the portrait page.  The drawing is the
-    same in every case.  ``room``: inches of the page's height kept for the caption and note (_figure_room)."""
+    same in every case.  ``note``: the figure's note, on the page of the drawing (_figure_room)."""
     width, height = svg_size(svg)
-    areas = _figure_areas(document, room)
+    areas = _figure_areas(document, note)
     choices = []  # (inches per unit of the drawing, landscape, pieces), in the order of preference
     for pieces_of in (lambda w, h: [svg], lambda w, h: svg_strips(svg, h * width / w)):
         for landscape in (False, True):
@@ -163,16 +161,17 @@ def _figure_pieces(document, svg: str, room: float = 0.0) -> tuple[bool, list[st
     return (landscape, pieces) if scale > LANDSCAPE_GAIN * choices[0][0] else (False, [svg])
 
 
-def _figure_areas(document, room: float = 0.0) -> tuple[tuple[float, float], tuple[float, float]]:
+def _figure_areas(document, note: str = "") -> tuple[tuple[float, float], tuple[float, float]]:
     """The room for a figure's drawing, width by height in inches, on a portrait and on a landscape page of
-    ``document``'s paper and margins (the text area less ``room`` inches for its caption and note): a drawing set
-    to the narrower width of a portrait page shrinks its labels with it, so a wide drawing (a model of many items)
-    prints larger across a landscape page."""
+    ``document``'s paper and margins: the text area less the room of its caption and ``note`` (_figure_room).  A
+    drawing set to the narrower width of a portrait page shrinks its labels with it, so a wide drawing (a model of
+    many items) prints larger across a landscape page."""
     section = document.sections[-1]
     long_side, short_side = max(section.page_width, section.page_height), min(section.page_width, section.page_height)
     across, down = section.left_margin + section.right_margin, section.top_margin + section.bottom_margin
-    return ((Emu(short_side - across).inches, Emu(long_side - down).inches - room),
-            (Emu(long_side - across).inches, Emu(short_side - down).inches - room))
+    areas = ((Emu(short_side - across).inches, Emu(long_side - down).inches),
+             (Emu(long_side - across).inches, Emu(short_side - down).inches))
+    return tuple((w, h - _figure_room(note, w)) for w, h in areas)
 
 
 def _set_orientation(document, landscape: bool) -> None:
@@ -355,9 +354,8 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
             document.add_paragraph(NO_PICTURE)
         else:
             for number, figure in enumerate(report.figures, start=1):
-                room = _figure_room(document, figure.note)  # the caption and the note on the drawing's page
-                wider, pieces = _figure_pieces(document, figure.svg, room)
-                area = _figure_areas(document, room)[wider]
+                wider, pieces = _figure_pieces(document, figure.svg, figure.note)
+                area = _figure_areas(document, figure.note)[wider]  # less the caption and the note
                 _set_orientation(document, wider)  # a wide drawing (many items) on a landscape page: larger labels
                 for k, piece in enumerate(pieces):
                     _caption(document, f"Figure {number}" + (" (continued)" if k else ""), figure.title)

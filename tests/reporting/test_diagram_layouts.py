@@ -213,7 +213,7 @@ def test_word_figures_fit_on_the_page(shapes):
     import io
 
     from docx import Document
-    from docx.shared import Inches
+    from docx.shared import Emu, Inches
 
     from cfa_tool.reporting.docx_report import _figure_room, report_docx
     from cfa_tool.reporting.fit_document import fit_report
@@ -238,7 +238,7 @@ def test_word_figures_fit_on_the_page(shapes):
         for picture, s, n in zip(pictures, found, figure):  # the width of its page's text area, unless that would run
             section = document.sections[s]  # off the page's foot (less the room of the caption and the note)
             width = section.page_width - section.left_margin - section.right_margin
-            room = _figure_room(document, report.figures[n].note)
+            room = _figure_room(report.figures[n].note, Emu(width).inches)
             assert room >= 5 / 6  # at least the caption's two lines and the note's three, 12 pt (1/6 inch) each
             height = section.page_height - section.top_margin - section.bottom_margin - Inches(room)
             assert picture.width <= width + 1 and picture.height <= height + 1

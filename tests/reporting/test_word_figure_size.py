@@ -116,7 +116,8 @@ def test_the_caption_the_drawing_and_its_note_are_kept_on_one_page():
     section = next(s for s in document.sections if s.orientation == WD_ORIENT.LANDSCAPE)
     text_height = E(section.page_height - section.top_margin - section.bottom_margin).inches
     # the note's three lines and the caption's two at 12 pt: at least 5 lines of 12 pt (1/6 inch) kept free
-    room = _figure_room(document, report.figures[0].note)
+    across = E(section.page_width - section.left_margin - section.right_margin).inches
+    room = _figure_room(report.figures[0].note, across)
     assert room >= 5 / 6
     for shape in document.inline_shapes:
         assert E(shape.height).inches + room <= text_height + 1e-6
