@@ -21,9 +21,14 @@ its factor correlations, and residual correlations that would join two bands,
 are then listed at the top of the drawing instead of arcs crossing the bands;
 so are correlations between a factor of the bottom row and one above it.  The
 factors whose lines would cross the bands (higher-order, general and method
-factors) are then drawn in a row of their own above the bands, and their
-loadings (and a cross-loading that would join two bands) are listed with the
-correlations.
+factors) are then drawn in a row of their own above the bands, under the lists.
+A higher-order factor keeps its arrows: straight down to its factors in the
+first band, and for those of later bands a line from the left of its ellipse
+down the left edge of the drawing and over the band to the top of each factor
+(each such factor's value beside it).  The loadings of general and method
+factors (one on every item), and a cross-loading that would join two bands, are
+listed with the correlations.  No text is drawn smaller than ``SMALLEST_TEXT``
+and no band wider than ``MAX_WIDTH``: the legibility rule stated there.
 Arcs between factors leave each ellipse at their own point of its top, so they
 do not all meet at one point.  The root element names the heights between bands
 (and between groups), where nothing is drawn, in ``data-breaks``: the Word report
@@ -47,8 +52,20 @@ RESIDUAL_R = 11
 BOX_GAP = 14  # between neighbouring items
 SIDE_GAP = 10  # between an item and its residual beside it
 MARGIN = 30.0
-MAX_WIDTH = 1000.0  # a band of items wider than this is broken into the next band (fits a page at about 6 pt)
+# Legibility rule: no text of a drawing prints below MIN_FIGURE_TEXT points.  Every text is at least SMALLEST_TEXT
+# units high, and a band of items is at most MAX_WIDTH units wide, so that a band set across the widest text area a
+# report gives it, PRINT_WIDTH inches (the Word report's landscape page: letter paper, 1.25 inch side margins),
+# prints its smallest text at SMALLEST_TEXT * 72 * PRINT_WIDTH / MAX_WIDTH >= MIN_FIGURE_TEXT points (1 pt = 1/72
+# inch).  The Word report cuts a drawing of several bands into strips between them (reporting.picture.svg_strips);
+# the HTML report shows it at one unit to a pixel up to its width (at least 900 pixels wide), so its smallest text
+# is at least 12 * 900 / MAX_WIDTH, about 10 pixels, at normal zoom.
+MIN_FIGURE_TEXT = 7.0  # points: journals' artwork guides ask for about 6 to 8 pt (common practice)
+SMALLEST_TEXT = 12  # units: the size of the values, the lists and the key
+PRINT_WIDTH = 8.5  # inches
+MAX_WIDTH = math.floor(SMALLEST_TEXT * 72 * PRINT_WIDTH / MIN_FIGURE_TEXT)  # 1049: wider bands break into the next
 BAND_GAP = 40.0
+EDGE_X, EDGE_STEP = 8.0, 7.0  # the lines down the left edge carrying higher-order factors' arrows to lower bands
+LANE_GAP = 20.0  # between such lines over a band's factors (a value's height and some air)
 # a factor whose items are wider than this is drawn in parts over several bands (a little wider than a band, it is
 # drawn whole: a slightly wider picture reads better than a factor cut in two)
 SPLIT_BEYOND = 1.1 * (MAX_WIDTH - 2 * MARGIN)
@@ -90,7 +107,7 @@ def _ellipse_rx(name: str) -> float:
     return max(42.0, 4.4 * len(name) + 22.0)
 
 
-def _label(x: float, y: float, text: str, size: int = 11, anchor: str = "middle", cls: str = "value",
+def _label(x: float, y: float, text: str, size: int = SMALLEST_TEXT, anchor: str = "middle", cls: str = "value",
            problem: bool = False) -> str:
     colour = f' fill="{PROBLEM_COLOUR}" font-weight="bold"' if problem else ""
     return (f'<text class="{cls}{" problem" if problem else ""}" x="{x:.1f}" y="{y:.1f}" font-size="{size}" '
@@ -107,6 +124,8 @@ class Drawn(enum.Enum):
     ARC = "curved double arrows: correlations"
     LISTED_CORRELATION = "correlations that would cross the drawing are listed above it instead of drawn"
     LISTED_LOADING = "loadings whose arrows would cross a row of items are listed above the drawing"
+    ROUTED_LOADING = ("arrows along the left edge: loadings of a factor drawn above the rows on factors of the rows "
+                      "below")
     DISTURBANCE = "a circle beside a factor: the share of its variance the factors above it do not explain"
     PROBLEM = "red: a value that makes the solution impossible or doubtful (see the report)"
 
@@ -168,6 +187,15 @@ class _Layout:
     continued: list[tuple[str, tuple[str, ...]]] = field(default_factory=list)  # (factor, its items in a later band)
     shown: dict[str, str] = field(default_factory=dict)  # the short label drawn for an item (see item_labels)
     breaks: list[float] = field(default_factory=list)  # the middle of each gap between bands, where nothing is drawn
+    routed: dict[str, int] = field(default_factory=dict)  # higher-order factors drawn apart, their arrows drawn: lane
+    via_edge: frozenset = frozenset()  # (factor, factor) loadings drawn along the left edge and over the band
+    lane_top: dict[int, float] = field(default_factory=dict)  # the top of each band's factors
+
+    def lane(self, factor: str, band: int) -> tuple[float, float]:
+        """Where the arrows of a higher-order factor drawn above the bands run (``routed``): x of its line down the
+        left edge, y of its line over the factors of ``band``."""
+        k = self.routed[factor]
+        return EDGE_X + EDGE_STEP * k, self.lane_top[band] - LANE_GAP * (k + 1)
 
     def text(self, name: str) -> str:
         """What the drawing shows for a factor or item."""
@@ -260,24 +288,13 @@ def _layout(result, rows, obs_set) -> _Layout:
                     {f: (lay.band_of[f], level[f], f in lay.bottom) for f in latent}, lay.centre, disturbed)
     width = max(width, max((lay.centre[f] + _ellipse_rx(f) + 50 for f in latent if f not in lay.apart), default=0.0),
                 200.0)
-    # factors drawn apart: highest level first, in rows as wide as the bands
-    apart_rows: list[list[str]] = []
-    for f in sorted(lay.apart, key=lambda f: (-level[f], latent.index(f))):
-        need = 2 * _ellipse_rx(f) + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
-        if not apart_rows or sum(_apart_width(g, disturbed) for g in apart_rows[-1]) + need > width - 2 * MARGIN:
-            apart_rows.append([])
-        apart_rows[-1].append(f)
-    y = MARGIN
-    for row in apart_rows:
-        x = (width - sum(_apart_width(g, disturbed) for g in row)) / 2
-        for f in row:
-            lay.centre[f] = x + 8 + _ellipse_rx(f)
-            lay.y_of[f] = y + ELLIPSE_RY
-            x += _apart_width(f, disturbed)
-        y += 2 * ELLIPSE_RY + 20
-    lay.table_top = y
     lay.width = width
-    # correlations between factors of different bands go to a table above the drawing
+    # a higher-order factor drawn above the bands keeps its arrows (lay.routed): straight to factors of the band
+    # under it, along the left edge and over their band to factors of the bands below; the general and method
+    # factors' loadings (one for every item) are listed instead
+    lay.routed = {f: k for k, f in enumerate(sorted((f for f in lay.apart if level[f] > 1 and f not in cross),
+                                                    key=lambda f: (-level[f], latent.index(f))))}
+    # correlations between factors of different bands, and loadings not drawn, go to lists at the top
     lay.banded = len(bands) > 1
     lay.drop_level = _nesting([r.variables for r in rows if r.kind == "residual_covariance"
                                and lay.band_of[r.variables[0]] == lay.band_of[r.variables[1]]], lay)
@@ -286,17 +303,45 @@ def _layout(result, rows, obs_set) -> _Layout:
         if r.kind == "factor_covariance" and (lay.banded or (a in lay.bottom) != (b in lay.bottom)) or \
                 r.kind == "residual_covariance" and lay.band_of.get(a) != lay.band_of.get(b):
             lay.table.append((r.kind, a, b))
-        elif r.kind == "loading" and (a in lay.apart or lay.band_of[a] != lay.band_of[b]):
+        elif r.kind == "loading" and (a in lay.apart and a not in lay.routed
+                                      or a not in lay.apart and lay.band_of[a] != lay.band_of[b]):
             lay.listed_loadings.append((a, b))
+    lay.table_top = y = MARGIN
     for entries in _lists(lay):
         y += 18 + 16 * math.ceil(len(entries) / _table_columns(entries, width, lay.text)) + 10
+    # factors drawn apart, under the lists: highest level first, in rows as wide as the bands, each factor whose
+    # arrows go along the left edge first in a row of its own (nothing between it and the edge)
+    apart_rows: list[list[str]] = []
+    for f in sorted(lay.apart, key=lambda f: (-level[f], f not in lay.routed, latent.index(f))):
+        need = 2 * _ellipse_rx(f) + 16 + (2 * RESIDUAL_R + 40 if f in disturbed else 0)
+        if not apart_rows or f in lay.routed or \
+                sum(_apart_width(g, disturbed) for g in apart_rows[-1]) + need > width - 2 * MARGIN:
+            apart_rows.append([])
+        apart_rows[-1].append(f)
+    for row in apart_rows:
+        x = (width - sum(_apart_width(g, disturbed) for g in row)) / 2
+        for f in row:
+            lay.centre[f] = x + 8 + _ellipse_rx(f)
+            lay.y_of[f] = y + ELLIPSE_RY
+            x += _apart_width(f, disturbed)
+        y += 2 * ELLIPSE_RY + 20
+    last_row = set(apart_rows[-1]) if apart_rows else set()
+    lay.via_edge = frozenset((r.variables[0], r.variables[1]) for r in loadings if r.variables[0] in lay.routed
+                             and r.variables[1] not in obs_set and r.variables[1] not in lay.apart
+                             and (lay.band_of[r.variables[1]] > 0 or r.variables[0] not in last_row))
     for b in range(len(bands)):
         in_band = [f for f in latent if lay.band_of[f] == b and f not in lay.bottom and f not in lay.apart]
         arcs = [r for r in rows if r.kind == "factor_covariance" and not lay.banded and not any(v in lay.bottom for v in r.variables)]
         spans = [abs(lay.centre[r.variables[0]] - lay.centre[r.variables[1]]) for r in arcs]
         y += max((_lift(s) for s in spans), default=0.0) + (24 if arcs else 0)
+        if b == 0 and any(r.variables[0] in lay.routed and r.variables[1] in in_band and r.variables not in lay.via_edge
+                          for r in loadings):  # straight arrows from the row above: room for them and their values
+            y += ROW_GAP - 2 * ELLIPSE_RY - 20
+        lanes = [lay.routed[f] for f, c in lay.via_edge if lay.band_of[c] == b]
+        y += LANE_GAP * (max(lanes) + 1) + 6 if lanes else 0.0  # room for the lanes over the band's factors
         levels = max((level[f] for f in in_band), default=1)
         y_ind = y + (levels * ROW_GAP if in_band else 36)  # a band of items only: room for the name over them
+        lay.lane_top[b] = y_ind - ROW_GAP + BOX_H / 2 - ELLIPSE_RY  # the top of the band's (first-order) factors
         for f in in_band:
             lay.y_of[f] = y_ind - level[f] * ROW_GAP + BOX_H / 2
         for x in bands[b]:
@@ -371,7 +416,7 @@ def _lists(lay: _Layout) -> list[list]:
     return [entries for entries in (lay.listed_loadings, lay.table) if entries]
 
 
-LIST_SIZE = 11  # font size of the lists above the drawing
+LIST_SIZE = SMALLEST_TEXT  # font size of the lists above the drawing and of the key
 
 
 def _entry_width(entries, shown=str) -> float:
@@ -440,7 +485,7 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
     key = [(short, name) for name, short in item_labels(result).items()]
     indent = TEXT_EM * LIST_SIZE * (max((len(short) for short, _ in key), default=0) + 1)  # from a label to its name
     key_column = indent + TEXT_EM * LIST_SIZE * max((len(name) for _, name in key), default=0) + 30  # with a gap
-    width = max([d.width for d in drawings] + [2 * MARGIN + TEXT_EM * 11 * len(line) for line in lines]
+    width = max([d.width for d in drawings] + [2 * MARGIN + TEXT_EM * SMALLEST_TEXT * len(line) for line in lines]
                 + ([2 * MARGIN + key_column] if key else []))
     key_columns = max(1, int((width - 2 * MARGIN) // key_column)) if key else 1
     key_rows = math.ceil(len(key) / key_columns)
@@ -480,7 +525,7 @@ def _document(result, groups: list[int], legend: bool, drawings: list | None = N
     red = any(Drawn.PROBLEM in d.drawn for d in drawings)
     for k, line in enumerate(lines):
         colour = f' fill="{PROBLEM_COLOUR}"' if red and k == len(lines) - 1 else ""
-        parts.append(f'<text class="legend" x="{MARGIN:.1f}" y="{y + 16 + 18 * k:.1f}" font-size="11"{colour}>{esc(line)}</text>')
+        parts.append(f'<text class="legend" x="{MARGIN:.1f}" y="{y + 16 + 18 * k:.1f}" font-size="{SMALLEST_TEXT}"{colour}>{esc(line)}</text>')
     parts.append("</svg>")
     return "\n".join(parts) + "\n"
 
@@ -544,6 +589,19 @@ def _draw(result, group: int) -> Drawing:
     for r in sorted((r for r in rows if r.kind == "loading"), key=lambda r: lay.home.get(r.variables[1]) != r.variables[0]):
         f, target = r.variables
         if r.variables in lay.listed_loadings:
+            continue
+        if r.variables in lay.via_edge:  # from a factor above the bands: left, down the edge, over the band, down
+            edge, lane = lay.lane(f, lay.band_of[target])
+            x1, y1, x2, y2 = centre[f] - _ellipse_rx(f), y_of[f], centre[target], y_of[target] - ELLIPSE_RY
+            dashed = ' stroke-dasharray="5,4"' if not r.free else ""
+            parts.append(f'<path class="loading routed" d="M{x1:.1f},{y1:.1f} H{edge:.1f} V{lane:.1f} H{x2:.1f} '
+                         f'V{y2:.1f}" fill="none" stroke="#333" stroke-width="1.3"{dashed} marker-end="url(#head)"/>')
+            drawn.add(Drawn.ROUTED_LOADING)
+            drawn.update({Drawn.FIXED_LOADING} if not r.free else set())
+            text = unit(r.standardized, 2)
+            lx, ly = _free_spot([(x2 - 6 - TEXT_EM * SMALLEST_TEXT * len(text) / 2, lane - 4)], text, placed)
+            impossible = result.groups[group].r_squared.get(target, 0.0) > 1.0
+            parts.append(_label(lx, ly, text, problem=impossible or flagged(r.kind, r.variables)))
             continue
         from_below = f in lay.bottom
         x1, y1 = centre[f], y_of[f] + (-ELLIPSE_RY if from_below else ELLIPSE_RY)
@@ -635,16 +693,16 @@ def _draw(result, group: int) -> Drawing:
         if resid is not None:
             text = unit(resid.standardized, 2)
             if lay.side_residuals:
-                parts.append(_label(cx, cy - RESIDUAL_R - 5, text, size=10, problem=bad))
+                parts.append(_label(cx, cy - RESIDUAL_R - 5, text, problem=bad))
             else:
-                parts.append(_label(cx + RESIDUAL_R + 3, cy + 4, text, size=10, anchor="start", problem=bad))
+                parts.append(_label(cx + RESIDUAL_R + 3, cy + 4, text, anchor="start", problem=bad))
     parts.append("</g>")
     if any(PROBLEM_COLOUR in part for part in parts):
         drawn.add(Drawn.PROBLEM)
     return Drawing(lay.width, lay.height + head, parts, [head + b for b in lay.breaks], frozenset(drawn))
 
 
-def _free_spot(spots: list[tuple[float, float]], text: str, placed: list, size: int = 11) -> tuple[float, float]:
+def _free_spot(spots: list[tuple[float, float]], text: str, placed: list, size: int = SMALLEST_TEXT) -> tuple[float, float]:
     """The first of ``spots`` (centre, baseline) where a label ``text`` covers none of the ``placed`` boxes (the
     first spot when none is free); its box is added to ``placed``.  Extent of a text as the layout tests estimate
     it: ``TEXT_EM`` per character, 1 em tall, with its white halo."""

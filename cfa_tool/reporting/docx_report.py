@@ -7,6 +7,7 @@ the solution come first, as in every view.  The tables are the report's own (one
 from __future__ import annotations
 
 import io
+import math
 import re
 
 from docx import Document
@@ -19,6 +20,7 @@ from docx.shared import Emu, Inches, Pt, RGBColor
 
 from cfa_tool.errors import printable
 from cfa_tool.reporting.column_parts import column_parts, label_columns
+from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT  # the smallest lettering of a figure in print
 from cfa_tool.reporting.picture import (DEFAULT_DPI, page_fit, png_converter, smallest_text, svg_size, svg_strips,
                                        svg_to_png)
 from cfa_tool.reporting.document import WARNINGS
@@ -115,22 +117,36 @@ def _room(document) -> float:
     return Emu(section.page_width - section.left_margin - section.right_margin).pt
 
 
-FIGURE_ROOM = 1.0  # inches of a page's text height kept for a figure's caption and note
 LANDSCAPE_GAIN = 1.1  # a figure goes on a landscape page when it prints at least this much larger there
-# the smallest lettering of a figure in print, in points: journals' artwork guides ask for about 6 to 8 pt (common
-# practice); a figure whose labels would print smaller across a portrait page goes on a landscape page
-MIN_FIGURE_TEXT = 7.0
+# a line of the body text in points: 12 pt type at the default template's line spacing of 1.15 (w:line 276/240),
+# a line of Times being about 1.15 times its size (Times New Roman's ascent plus descent, recalled from memory);
+# PARAGRAPH_GAP is the space after a paragraph (the template's w:after 200 twentieths of a point)
+LINE = 12.0 * 1.15 * 1.15
+PARAGRAPH_GAP = 10.0
+PICTURE_GAP = 6.0  # points after the picture's paragraph
+SLACK = 14.0  # points kept free on the page: the estimates above are not the word processor's own
 
 
-def _figure_pieces(document, svg: str) -> tuple[bool, list[str]]:
+def _figure_room(note: str, across: float) -> float:
+    """Inches of a page's text height a figure's words take (no drawing) on a page whose text is ``across`` inches
+    wide: the caption's two lines, the note's lines (estimated from Times' character widths, which are made a
+    little wider than they are), the space after each paragraph, and a line's slack; the drawing is sized for what
+    is left, so that the caption, the drawing and its note fit on one page (and are kept together there,
+    keep-with-next)."""
+    note_lines = math.ceil(_text_width("Note. " + typeset(note), 12.0) / (72.0 * across)) if note else 0
+    points = 2 * LINE + PARAGRAPH_GAP + PICTURE_GAP + (note_lines * LINE + 12.0 if note else 0.0) + SLACK
+    return points / 72.0
+
+
+def _figure_pieces(document, svg: str, note: str = "") -> tuple[bool, list[str]]:
     """How a figure is set: (on a landscape page, its drawing whole or in strips).  The first of: whole on a
     portrait page, whole on a landscape page, in strips on portrait pages, in strips on landscape pages, whose
     smallest text prints at least ``MIN_FIGURE_TEXT``; the strips are cut between the bands of a diagram of many
     items (picture.svg_strips), one under the other on following pages.  When none reaches that size, the one that
     prints largest, if at least ``LANDSCAPE_GAIN`` times larger than whole on the portrait page.  The drawing is the
-    same in every case."""
+    same in every case.  ``note``: the figure's note, on the page of the drawing (_figure_room)."""
     width, height = svg_size(svg)
-    areas = _figure_areas(document)
+    areas = _figure_areas(document, note)
     choices = []  # (inches per unit of the drawing, landscape, pieces), in the order of preference
     for pieces_of in (lambda w, h: [svg], lambda w, h: svg_strips(svg, h * width / w)):
         for landscape in (False, True):
@@ -145,15 +161,17 @@ def _figure_pieces(document, svg: str) -> tuple[bool, list[str]]:
     return (landscape, pieces) if scale > LANDSCAPE_GAIN * choices[0][0] else (False, [svg])
 
 
-def _figure_areas(document) -> tuple[tuple[float, float], tuple[float, float]]:
-    """The room for a figure, width by height in inches, on a portrait and on a landscape page of ``document``'s
-    paper and margins (the text area less ``FIGURE_ROOM``): a drawing set to the narrower width of a portrait page
-    shrinks its labels with it, so a wide drawing (a model of many items) prints larger across a landscape page."""
+def _figure_areas(document, note: str = "") -> tuple[tuple[float, float], tuple[float, float]]:
+    """The room for a figure's drawing, width by height in inches, on a portrait and on a landscape page of
+    ``document``'s paper and margins: the text area less the room of its caption and ``note`` (_figure_room).  A
+    drawing set to the narrower width of a portrait page shrinks its labels with it, so a wide drawing (a model of
+    many items) prints larger across a landscape page."""
     section = document.sections[-1]
     long_side, short_side = max(section.page_width, section.page_height), min(section.page_width, section.page_height)
     across, down = section.left_margin + section.right_margin, section.top_margin + section.bottom_margin
-    return ((Emu(short_side - across).inches, Emu(long_side - down).inches - FIGURE_ROOM),
-            (Emu(long_side - across).inches, Emu(short_side - down).inches - FIGURE_ROOM))
+    areas = ((Emu(short_side - across).inches, Emu(long_side - down).inches),
+             (Emu(long_side - across).inches, Emu(short_side - down).inches))
+    return tuple((w, h - _figure_room(note, w)) for w, h in areas)
 
 
 def _set_orientation(document, landscape: bool) -> None:
@@ -336,14 +354,18 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
             document.add_paragraph(NO_PICTURE)
         else:
             for number, figure in enumerate(report.figures, start=1):
-                wider, pieces = _figure_pieces(document, figure.svg)
-                area = _figure_areas(document)[wider]
+                wider, pieces = _figure_pieces(document, figure.svg, figure.note)
+                area = _figure_areas(document, figure.note)[wider]  # less the caption and the note
                 _set_orientation(document, wider)  # a wide drawing (many items) on a landscape page: larger labels
                 for k, piece in enumerate(pieces):
                     _caption(document, f"Figure {number}" + (" (continued)" if k else ""), figure.title)
                     png = svg_to_png(piece, dpi)
                     side, inches = page_fit(png, *area)
                     document.add_picture(io.BytesIO(png), **{side: Inches(inches)})
+                    picture = document.paragraphs[-1].paragraph_format
+                    picture.line_spacing = 1.0  # the template's 1.15 would make the picture's line taller still
+                    picture.space_after = Pt(PICTURE_GAP)
+                    picture.keep_with_next = bool(figure.note) and k == len(pieces) - 1  # the note on its page
                 if figure.note:
                     _note(document, figure.note)
             _set_orientation(document, landscape=False)

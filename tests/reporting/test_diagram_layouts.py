@@ -20,6 +20,7 @@ import pytest
 
 import cfa_tool
 from cfa_tool.reporting.diagram import diagram_file, path_diagram
+from cfa_tool.resources import resource_dir
 
 from tests.conftest import THREE_FACTORS, simulate_cfa
 from tests.commands.test_cli import run
@@ -212,15 +213,16 @@ def test_word_figures_fit_on_the_page(shapes):
     import io
 
     from docx import Document
-    from docx.shared import Inches
+    from docx.shared import Emu, Inches
 
-    from cfa_tool.reporting.docx_report import report_docx
+    from cfa_tool.reporting.docx_report import _figure_room, report_docx
     from cfa_tool.reporting.fit_document import fit_report
 
     from docx.oxml.ns import qn
 
     for shape, groups in (("small", 1), ("groups", 2), ("60 items", 1), ("method factor", 1)):
-        document = Document(io.BytesIO(report_docx(fit_report(shapes[shape]), 100)))
+        report = fit_report(shapes[shape])
+        document = Document(io.BytesIO(report_docx(report, 100)))
         pictures = document.inline_shapes
         # one figure per group; a drawing too large to print readably on one page goes on in strips, each under a
         # caption 'Figure n (continued)'
@@ -232,10 +234,13 @@ def test_word_figures_fit_on_the_page(shapes):
             if child.tag == qn("w:p"):
                 found += [k] * len(child.findall(".//" + qn("wp:inline")))
                 k += child.find(f"{qn('w:pPr')}/{qn('w:sectPr')}") is not None
-        for picture, s in zip(pictures, found):  # the width of its page's text area, unless that would run off the
-            section = document.sections[s]      # page's foot (less an inch for the caption and note)
+        figure = [int(c.split()[1]) - 1 for c in captions]  # the figure each picture belongs to
+        for picture, s, n in zip(pictures, found, figure):  # the width of its page's text area, unless that would run
+            section = document.sections[s]  # off the page's foot (less the room of the caption and the note)
             width = section.page_width - section.left_margin - section.right_margin
-            height = section.page_height - section.top_margin - section.bottom_margin - Inches(1)
+            room = _figure_room(report.figures[n].note, Emu(width).inches)
+            assert room >= 5 / 6  # at least the caption's two lines and the note's three, 12 pt (1/6 inch) each
+            height = section.page_height - section.top_margin - section.bottom_margin - Inches(room)
             assert picture.width <= width + 1 and picture.height <= height + 1
             assert abs(picture.width - width) <= 1 or abs(picture.height - height) <= 1
     notes = [p.text for p in Document(io.BytesIO(report_docx(fit_report(shapes["method factor"]), 100))).paragraphs]
@@ -296,8 +301,9 @@ def test_correlations_of_the_bottom_row_with_factors_above_are_listed_not_drawn(
 @pytest.mark.parametrize("shape", ["higher-order, 60 items", "bifactor, 48 items", "method factor, 40 items"])
 def test_a_big_model_is_drawn_in_bands_as_wide_as_a_page_and_every_loading_is_drawn_or_listed(shapes, shape):
     """A model too wide for one row is drawn in bands no wider than ``MAX_WIDTH``; a factor whose lines would cross
-    the bands (the higher-order factor, the general factor) is drawn once above them, and each of its loadings is
-    listed there with its value; every other loading is an arrow."""
+    the bands (the higher-order factor, the general factor) is drawn once above them.  The general and method
+    factors' loadings (one on every item) are listed there with their values; the higher-order factor's are arrows
+    (along the left edge to the factors of lower bands); every other loading is an arrow."""
     from cfa_tool.reporting.diagram import MAX_WIDTH
     from cfa_tool.reporting.numbers import unit
 
@@ -308,10 +314,10 @@ def test_a_big_model_is_drawn_in_bands_as_wide_as_a_page_and_every_loading_is_dr
     names = ["".join(t.itertext()) for t in root.iter(SVG + "text") if t.get("class") == "name"]
     assert sorted(names) == sorted(list(result.latent) + list(result.observed))  # each factor and item once
     listed = re.findall(r'class="listed-loading"[^>]*>([^<]*)<', svg)
-    arrows = len(root.findall(f".//{SVG}line[@class='loading']"))
+    arrows = len(root.findall(f".//{SVG}line[@class='loading']")) + len(root.findall(f".//{SVG}path[@class='loading routed']"))
     rows = [r for r in result.estimates if r.kind == "loading"]
     assert arrows + len(listed) == len(rows)
-    apart = {"higher-order, 60 items": {"g"}, "bifactor, 48 items": {"general"},
+    apart = {"higher-order, 60 items": set(), "bifactor, 48 items": {"general"},
              "method factor, 40 items": {"wording"}}[shape]
     # a trait wider than a band goes on in the next band, named there: its loadings on those items are listed
     continued = {"method factor, 40 items": {f"v{i}" for i in (*range(11, 21), *range(31, 41))}}.get(shape, set())
@@ -334,7 +340,80 @@ def test_the_legend_explains_only_what_the_drawing_shows(shapes, hs_data):
         assert ("dashed arrows" in legend) == ('stroke-dasharray="5,4"' in svg), shape
         assert ("correlations that would cross" in legend) == ('class="listed-correlation"' in svg), shape
         assert ("loadings whose arrows would cross" in legend) == ('class="listed-loading"' in svg), shape
+        assert ("arrows along the left edge" in legend) == ('class="loading routed"' in svg), shape
         assert ("red:" in legend) == ('#b3261e' in svg), shape
     one_factor = cfa_tool.fit("factor g: x1..x9\nscale latent by variance\n", hs_data)
     svg, legend = diagram_with_legend(one_factor)
     assert "curved" not in legend and "dashed" not in legend and "listed" not in legend
+
+
+@pytest.mark.parametrize("shape", ["60 items", "higher-order, 60 items", "bifactor, 48 items", "method factor, 40 items"])
+def test_a_big_model_prints_its_smallest_text_at_7_points_across_a_landscape_page(shapes, shape):
+    """The legibility rule of diagram.py: a drawing in bands is at most MAX_WIDTH units wide and no text is smaller
+    than SMALLEST_TEXT units, so across the Word report's landscape text width (8.5 inches: letter paper, less the
+    1.25 inch side margins python-docx's template gives) its smallest text prints at 7 pt or more (1 pt = 1/72
+    inch).  Before the rule, residual values were 10 units in bands 1000 wide: 6.1 pt."""
+    from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT, PRINT_WIDTH, SMALLEST_TEXT
+    from cfa_tool.reporting.picture import smallest_text
+
+    svg = diagram_file(shapes[shape])
+    root = ET.fromstring(svg)
+    assert root.get("data-breaks")  # drawn in bands
+    assert min(float(t.get("font-size")) for t in root.iter(SVG + "text")) >= SMALLEST_TEXT
+    assert MIN_FIGURE_TEXT == 7.0 and PRINT_WIDTH == 8.5
+    assert smallest_text(svg, 8.5) >= 7.0
+
+
+def _ellipses(root) -> dict[str, tuple[float, float, float, float]]:
+    """(cx, cy, rx, ry) of each factor's ellipse, by the name written in it (the text after it)."""
+    out, last = {}, None
+    for node in root.iter():
+        if node.tag == SVG + "ellipse":
+            last = tuple(float(node.get(a)) for a in ("cx", "cy", "rx", "ry"))
+        elif node.tag == SVG + "text" and node.get("class") == "name" and last is not None:
+            out["".join(node.itertext())] = last
+            last = None
+    return out
+
+
+@pytest.mark.parametrize("shape", ["higher-order, 60 items", "higher-order, rider survey"])
+def test_a_higher_order_factor_drawn_above_bands_has_an_arrow_to_each_of_its_factors(shapes, shape):
+    """The second-order factor of a model drawn in bands was drawn apart, its loadings only listed.  Now each of
+    its loadings is an arrow from its ellipse (drawn once, above the bands) to the top of its factor's ellipse:
+    straight to the factors of the first band, along the left edge and over their band to the others, each with
+    its standardized value; nothing is listed.  Read back from the SVG (each group is translated as a whole, so
+    the coordinates of one group's drawing are comparable)."""
+    from cfa_tool.reporting.diagram import MARGIN
+    from cfa_tool.reporting.numbers import unit
+
+    if shape == "higher-order, rider survey":
+        result = cfa_tool.fit(resource_dir("models") / "rider_higher_order.cfa", resource_dir("demo") / "rider_survey.csv")
+    else:
+        result = shapes[shape]
+    svg = diagram_file(result)
+    root = ET.fromstring(svg)
+    assert root.get("data-breaks")  # drawn in bands
+    assert 'class="listed-loading"' not in svg
+    ellipses = _ellipses(root)
+    higher = [r for r in result.estimates if r.kind == "loading" and r.variables[1] in result.latent]
+    assert higher
+    ends = []
+    for node in root.iter():
+        if node.tag == SVG + "line" and node.get("class") == "loading":
+            ends.append(((float(node.get("x1")), float(node.get("y1"))), (float(node.get("x2")), float(node.get("y2")))))
+        elif node.tag == SVG + "path" and node.get("class") == "loading routed":
+            numbers = [float(v) for v in re.findall(r"-?[0-9.]+", node.get("d"))]  # M x,y H x V y H x V y
+            assert numbers[2] < MARGIN  # along the left edge, left of every item
+            ends.append(((numbers[0], numbers[1]), (numbers[4], numbers[5])))
+    routed = 0
+    for r in higher:
+        top, child = ellipses[r.variables[0]], ellipses[r.variables[1]]
+        arrow = [(a, b) for a, b in ends if abs(b[0] - child[0]) < 0.2 and abs(b[1] - (child[1] - child[3])) < 0.2]
+        assert len(arrow) == 1, r.variables  # one arrow ends at the top of the factor's ellipse
+        (x, y), _ = arrow[0]
+        on_left = abs(x - (top[0] - top[2])) < 0.2 and abs(y - top[1]) < 0.2
+        on_bottom = abs(x - top[0]) < 0.2 and abs(y - (top[1] + top[3])) < 0.2
+        assert on_left or on_bottom  # and starts on the higher-order factor's ellipse
+        routed += on_left
+        assert unit(r.standardized, 2) in ["".join(t.itertext()) for t in root.iter(SVG + "text")]
+    assert routed >= 1  # some factor in a band below the first

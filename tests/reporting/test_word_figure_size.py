@@ -63,7 +63,8 @@ def test_a_small_diagram_stays_on_the_portrait_page():
 
 def test_a_diagram_of_thirty_items_goes_on_in_strips(tmp_path):
     # thirty items in five factors of six (simulated with a fixed seed): drawn in three bands of factors, too small
-    # to read across one page (about 4.5 pt), so the Word figure is cut between the bands, one strip a page
+    # to read across one page (about 4.5 pt), so the Word figure is cut between the bands, in strips across landscape
+    # pages whose labels print at MIN_FIGURE_TEXT or more (they printed at 6.4 pt before the rule of diagram.py)
     import numpy as np
     import pandas as pd
 
@@ -83,12 +84,40 @@ def test_a_diagram_of_thirty_items_goes_on_in_strips(tmp_path):
     assert _smallest_points(svg, min(6.0, 8.0 * width / height)) < MIN_FIGURE_TEXT  # whole, on the portrait page
     document = docx.Document(io.BytesIO(report_docx(report, dpi=96)))
     pictures = document.inline_shapes
-    assert len(pictures) == 2
     captions = [p.text for p in document.paragraphs if p.text.startswith("Figure ")]
-    assert captions == ["Figure 1", "Figure 1 (continued)"]
-    strips = svg_strips(svg, 5.5 * width / 8.5)  # landscape: 8.5 by 5.5 inches for the drawing
-    tops = [float(re.search(r'viewBox="0 ([0-9.]+) ', s).group(1)) for s in strips]
-    assert len(strips) == 2 and tops[0] == 0 and tops[1] in breaks  # cut where nothing is drawn
-    for picture in pictures:  # each strip across the landscape page, its labels larger than the whole drawing's
-        assert abs(Emu(picture.width).inches - 8.5) < 0.01 or Emu(picture.height).inches <= 5.5 + 0.01
-        assert _smallest_points(svg, Emu(picture.width).inches) > 1.1 * _smallest_points(svg, 6.0)
+    assert captions == ["Figure 1"] + ["Figure 1 (continued)"] * (len(pictures) - 1) and len(pictures) >= 2
+    for picture in pictures:  # each strip across the landscape page: its labels at least MIN_FIGURE_TEXT points
+        assert abs(Emu(picture.width).inches - 8.5) < 0.01
+        assert _smallest_points(svg, Emu(picture.width).inches) >= MIN_FIGURE_TEXT
+    assert len(pictures) <= len(breaks) + 1  # cut only between bands (picture.svg_strips), where nothing is drawn
+    strips = svg_strips(svg, 0.0)  # every cut made: each strip's top is a break
+    assert [float(re.search(r'viewBox="0 ([0-9.]+) ', s).group(1)) for s in strips][1:] == breaks
+
+
+def test_the_caption_the_drawing_and_its_note_are_kept_on_one_page():
+    # the note under the rider survey's diagram fell alone on a page of its own: the drawing filled the page's
+    # height with no room for the note.  Now the caption keeps with the picture and the picture with the note, and
+    # the picture is sized for the page's text height less the caption's and the note's lines (Times' widths).
+    from docx.shared import Emu as E
+
+    from cfa_tool.reporting.docx_report import _figure_room
+
+    report = fit_report(cfa_tool.fit(resource_dir("models") / "rider_three_factors.cfa",
+                                     resource_dir("demo") / "rider_survey.csv"))
+    document = docx.Document(io.BytesIO(report_docx(report, dpi=96)))
+    paragraphs = document.paragraphs
+    pictured = [k for k, p in enumerate(paragraphs) if p._p.findall(".//" + qn("wp:inline"))]
+    note = next(k for k, p in enumerate(paragraphs) if p.text.startswith("Note. Standardized values"))
+    assert note == pictured[-1] + 1
+    for k in pictured:  # 'Figure 1', its title, the picture: each kept with the next paragraph
+        assert paragraphs[k - 2].text.startswith("Figure 1")
+        assert paragraphs[k - 2].paragraph_format.keep_with_next and paragraphs[k - 1].paragraph_format.keep_with_next
+    assert paragraphs[pictured[-1]].paragraph_format.keep_with_next
+    section = next(s for s in document.sections if s.orientation == WD_ORIENT.LANDSCAPE)
+    text_height = E(section.page_height - section.top_margin - section.bottom_margin).inches
+    # the note's three lines and the caption's two at 12 pt: at least 5 lines of 12 pt (1/6 inch) kept free
+    across = E(section.page_width - section.left_margin - section.right_margin).inches
+    room = _figure_room(report.figures[0].note, across)
+    assert room >= 5 / 6
+    for shape in document.inline_shapes:
+        assert E(shape.height).inches + room <= text_height + 1e-6

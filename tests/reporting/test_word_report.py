@@ -117,3 +117,7 @@ def test_the_word_report_converts_to_pdf_with_its_figure(tmp_path):
     if shutil.which("pdfinfo"):
         pages = subprocess.run(["pdfinfo", str(pdf)], capture_output=True, text=True).stdout
         assert int(next(line.split()[-1] for line in pages.splitlines() if line.startswith("Pages:"))) >= 2
+    if shutil.which("pdftotext"):  # the figure's note is printed on the page of its drawing, never alone on a page
+        text = subprocess.run(["pdftotext", str(pdf), "-"], capture_output=True, text=True).stdout
+        page = next(page for page in text.split("\f") if "Note. Standardized values" in page)
+        assert "Figure 1" in page
