@@ -333,9 +333,8 @@ def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: t
         general = next((c for c in codings if not c.items), None)
         unlisted = [f"{printable(c)} ('{printable(cell)}' in data row {row})"
                     for c in text[:10] for cell, row in [_first_unlisted(frame[c], general)] if cell is not None]
-        said += (f" Left out as text, not numbers nor only words of the answers file (--answers): {listed(text)}"
-                 + (f"; not among its words: {', '.join(unlisted)}" if unlisted else "")
-                 + "; name a column in --items to see what each cell must be.")
+        said += (f" Left out as text holding none of the answers file's words (--answers): "
+                 + ", ".join(unlisted) + (f" and {len(text) - 10} more" if len(text) > 10 else "") + ".")
     elif text:
         from cfa_tool.data.answer_scales import suggested_statement
 
@@ -376,8 +375,11 @@ def _answer_codings(answers) -> tuple:
 
 
 def _word_columns(frame: pd.DataFrame, numeric: tuple[str, ...], codings: tuple) -> tuple[str, ...]:
-    """The columns of text an answers file covers: those its statements name with 'for', and those whose every
-    word is one the statement for every item lists (numbers among them are read by that statement too)."""
+    """The columns of text an answers file covers: those its statements name with 'for', and those holding a word
+    the statement for every item lists (a cell it does not list is then an error naming the cell, never a column
+    silently left out for a typing error)."""
+    from cfa_tool.language.spec import answer_key
+
     named = {x for c in codings for x in c.item_names}
     general = next((c for c in codings if not c.items), None)
     absent = next((n for c in codings for n in c.items if n.text not in set(map(str, frame.columns))), None)
@@ -395,10 +397,9 @@ def _word_columns(frame: pd.DataFrame, numeric: tuple[str, ...], codings: tuple)
             continue
         if frame[column].dtype.kind in "mM" or general is None:
             continue
-        cells = frame[column].dropna()
-        words = [v for v in cells.to_numpy(dtype=object) if isinstance(v, str) and v.strip()]
-        if words and _first_unlisted(cells, general)[0] is None:
-            out.append(name)
+        listed = general.codes_by_word()
+        if any(isinstance(v, str) and answer_key(v) in listed for v in frame[column].dropna().to_numpy(dtype=object)):
+            out.append(name)  # a column holding its words: any other cell is named by the statement's own reading
     return tuple(out)
 
 
@@ -595,6 +596,11 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, missing_codes, api.keep_option(keep))
     frame = loaded.frame
     rows_read = len(loaded.read_frame) if loaded.read_frame is not None else len(frame)
+    empty = next((c for c in chosen if not frame[c].notna().any()), None)
+    if empty is not None and not by_default:  # the reading of the items would say 'take it out of the model'
+        raise DataError(f"{source}: column '{printable(empty)}' has no answers"
+                        + (" in the rows the row filters kept" if loaded.read_frame is not None else " at all")
+                        + " (every cell is empty); take it out of --items, or check the data file")
     if by_default:
         constant = [c for c in chosen if frame[c].nunique(dropna=True) <= 1]
         chosen = tuple(c for c in chosen if c not in constant)

@@ -140,3 +140,23 @@ def test_nearly_constant_items_are_named_first_as_fit_names_them(coded, tmp_path
     result = cfa_tool.explore(str(path), items=ITEMS + ["x10"])
     first = result.problems()[0]
     assert first.startswith("Nearly constant item: 'x10' is 3 in all but 2 of the 301 rows")
+
+
+def test_a_typing_error_among_the_words_is_named_not_a_column_left_out(words_file, coded, tmp_path, capsys):
+    _, path, answers = words_file
+    words = pd.read_csv(path)
+    words.loc[6, "x5"] = "Agre"
+    typo = tmp_path / "typo.csv"
+    words.to_csv(typo, index=False)
+    code, out, err = _run(["explore", "--data", typo, "--answers", answers], capsys)
+    assert code == 2 and "column 'x5', data row 7: the answer 'Agre' is not one of the words" in err
+
+
+def test_an_empty_item_is_an_error_naming_items_not_a_model(coded, tmp_path, capsys):
+    data = coded[ITEMS].copy()
+    data["x10"] = np.nan
+    path = tmp_path / "empty.csv"
+    data.to_csv(path, index=False)
+    code, out, err = _run(["explore", "--data", path, "--items", "x1..x10"], capsys)
+    assert code == 2 and "column 'x10' has no answers at all" in err
+    assert "take it out of --items" in err and "model" not in err
