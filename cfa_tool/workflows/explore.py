@@ -659,14 +659,14 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
         with blas_threads_for(correlations.p):
             fits = fit_sequence(correlations, largest)
     fits = tuple(f for f in fits if f.factors <= max(largest, exploration.count.recommended + 2))
-    split_result = None
-    if halves is not None:
-        split_result = _confirm(exploration, halves, split, source, ordinal_items)
     drafted = tuple(p.item for p in exploration.draft.placements
                     if p.placement is Placement.ON_FACTOR and exploration.draft.written[p.factor])
+    statements = tuple(answer_lines(spec, drafted))
+    split_result = None
+    if halves is not None:
+        split_result = _confirm(exploration, halves, split, source, statements)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
-                         sorted_items(exploration), data_problems, tuple(answer_lines(spec, drafted)),
-                         coding_record(spec))
+                         sorted_items(exploration), data_problems, statements, coding_record(spec))
 
 
 @dataclass(frozen=True)
@@ -712,18 +712,28 @@ def _correlations(frame, names, source, ordinal_items, notes):
             notes.append(f"{left} rows answered none of the items and were left out.")
         return from_ordinal_moments(moments)
     values = _numeric_rows(frame, names, source)
-    gaps = int(np.isnan(values).any(axis=1).sum())
+    absent = np.isnan(values)
+    empty = int(absent.all(axis=1).sum())  # rows that answered none of the items: left out, as fit leaves them out
+    gaps = int(absent.any(axis=1).sum()) - empty
     missing = "full-information" if gaps else "listwise"
     moments = sample_moments(frame, names, source, missing=missing)
     if gaps:
         notes.append(f"{gaps} rows miss some answers; the correlations are the maximum-likelihood (EM) estimates from "
                      f"every answer, and N is the {moments.n_obs} rows with at least one answer.")
+    if empty:
+        notes.append(f"{empty} of {len(values)} rows answered none of the items and were left out.")
     return from_sample_moments(moments)
 
 
-def _confirm(exploration: Exploration, halves, seed: int, source: str, ordinal_items) -> SplitHalves:
+def _confirm(exploration: Exploration, halves, seed: int, source: str, statements: tuple[str, ...]) -> SplitHalves:
+    """The draft model fitted on the confirmation half.  Its rows were read once, with the answers file's words
+    coded, so the draft is fitted to their codes, and the fit keeps the coding that the draft model file's
+    ``statements`` state (its methods paragraph says how the words were coded, as a fit of that file does)."""
+    from dataclasses import replace
+
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.errors import CfaError
+    from cfa_tool.language.parser import parse_model
 
     first, second, confirming = halves
     if not exploration.draft.usable:
@@ -735,6 +745,9 @@ def _confirm(exploration: Exploration, halves, seed: int, source: str, ordinal_i
         return SplitHalves(seed, first, second, None, f"the draft model could not be fitted on the confirmation half: "
                                                       f"{exc}")
     fitted = replace_source(fitted, f"{source} (confirmation half, {len(second)} rows)")
+    if statements:
+        written = parse_model(exploration.draft.text + "".join(line + "\n" for line in statements), "draft model")
+        fitted = replace(fitted, data=replace(fitted.data, answer_coding=coding_record(written)))
     return SplitHalves(seed, first, second, fitted)
 
 

@@ -78,10 +78,12 @@ def test_answers_recorded_as_words_are_explored_with_an_answers_file(words_file,
 
 def test_the_draft_model_reads_the_words_back_with_fit_unchanged(words_file, capsys):
     folder, path, answers = words_file
-    draft = folder / "draft_split.cfa"
+    draft, js = folder / "draft_split.cfa", folder / "split.json"
     code, out, err = _run(["explore", "--data", path, "--answers", answers, "--items", "x1..x9", "--draft", draft,
-                           "--split", 11], capsys)
+                           "--split", 11, "--json", js], capsys)
     assert code == 0, err
+    confirmation = json.loads(js.read_text())["split"]["confirmation"]
+    assert confirmation["data"]["answer_coding"][0]["answers"][-1] == {"word": "Strongly agree", "code": 5.0}
     text = draft.read_text()
     assert STATEMENT in text
     fitted = cfa_tool.fit(draft, str(path))  # the draft as written, on the data file as it is
@@ -160,3 +162,17 @@ def test_an_empty_item_is_an_error_naming_items_not_a_model(coded, tmp_path, cap
     code, out, err = _run(["explore", "--data", path, "--items", "x1..x10"], capsys)
     assert code == 2 and "column 'x10' has no answers at all" in err
     assert "take it out of --items" in err and "model" not in err
+
+
+def test_rows_that_answered_no_item_are_said_to_be_left_out_not_to_miss_some_answers(coded, tmp_path):
+    """fit says '40 of 300 rows answered none of the model variables and were left out'; explore counted such rows
+    among the rows that 'miss some answers'."""
+    data = coded[ITEMS].astype(float)
+    data.iloc[:40] = np.nan
+    data.iloc[50, 0] = np.nan  # one row with a gap
+    path = tmp_path / "empty_rows.csv"
+    data.to_csv(path, index=False)
+    result = cfa_tool.explore(str(path), items=ITEMS)
+    assert result.exploration.data.n_obs == 301 - 40
+    assert "40 of 301 rows answered none of the items and were left out." in result.notes
+    assert any(n.startswith("1 rows miss some answers;") for n in result.notes)
