@@ -176,3 +176,19 @@ def test_rows_that_answered_no_item_are_said_to_be_left_out_not_to_miss_some_ans
     assert result.exploration.data.n_obs == 301 - 40
     assert "40 of 301 rows answered none of the items and were left out." in result.notes
     assert any(n.startswith("1 rows miss some answers;") for n in result.notes)
+
+
+def test_numbers_beside_words_draft_a_statement_for_the_words_items_only(words_file, coded, tmp_path, capsys):
+    _, path, answers = words_file
+    mixed = pd.read_csv(path)
+    mixed[["x4", "x5", "x6"]] = coded[["x4", "x5", "x6"]]  # three items exported as numbers
+    data = tmp_path / "mixed.csv"
+    mixed.to_csv(data, index=False)
+    draft = tmp_path / "mixed_draft.cfa"
+    code, out, err = _run(["explore", "--data", data, "--answers", answers, "--draft", draft], capsys)
+    assert code == 0, err
+    statement = next(line for line in draft.read_text().splitlines() if line.startswith("answers "))
+    covered = statement.split(" for ")[1].split(", ")
+    assert sorted(covered) == ["x1", "x2", "x3", "x7", "x8", "x9"]
+    fitted = cfa_tool.fit(draft, str(data))
+    assert set(fitted.data.answer_coding[0][0]) == set(covered)
