@@ -331,8 +331,8 @@ def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: t
     said = f" Left out as dates or times: {listed(dates)}." if dates else ""
     if text and codings:
         general = next((c for c in codings if not c.items), None)
-        unlisted = [f"{printable(c)} ('{printable(cell)}' in data row {row})"
-                    for c in text[:10] for cell, row in [_first_unlisted(frame[c], general)] if cell is not None]
+        unlisted = [printable(c) + (f" ('{printable(cell)}' in data row {row})" if cell is not None else "")
+                    for c in text[:10] for cell, row in [_first_unlisted(frame[c], general)]]
         said += (f" Left out as text holding none of the answers file's words (--answers): "
                  + ", ".join(unlisted) + (f" and {len(text) - 10} more" if len(text) > 10 else "") + ".")
     elif text:
