@@ -27,6 +27,9 @@ def add_parser(sub) -> None:
     p.add_argument("--target", metavar="FILE",
                    help="target rotation towards this CSV file: first line 'item,' then the factor names; one line per "
                         "item, 0 where its loading is aimed at zero, empty where free (implies --rotation target)")
+    p.add_argument("--answers", metavar="FILE",
+                   help="an answers file for answers recorded as words: 'answers' statements as a model file writes "
+                        "them, such as: answers \"Disagree\" = 1, \"Agree\" = 2 (the draft model carries them)")
     p.add_argument("--extraction", default="maximum-likelihood", choices=("maximum-likelihood", "least-squares"),
                    help="how the factors are estimated (default maximum-likelihood)")
     p.add_argument("--ordinal", metavar="ITEMS",
@@ -57,18 +60,18 @@ def run(args: argparse.Namespace) -> int:
         raise OptionError("--halves-file saves the random halves of --split SEED, and this run explores every row")
     outputs = [("--draft", args.draft), ("--json", args.json), ("--html", args.html), ("--markdown", args.markdown),
                (HALVES_FILE, args.halves_file)]
-    check_files(args, outputs, [args.data] + ([args.target] if args.target else []),
+    check_files(args, outputs, [args.data] + [f for f in (args.target, args.answers) if f],
                 never_replaced=("--draft", HALVES_FILE))
     rotation = args.rotation or ("target" if args.target else "quartimin")
     result = explore(args.data, items=args.items, factors=args.factors, rotation=rotation,
                      extraction=args.extraction, ordinal=O.ordinal_arg(args.ordinal), split=args.split,
                      sheet=args.sheet, missing_codes=args.missing_codes, keep=args.keep,
-                     replications=args.replications, seed=args.seed, target=args.target)
+                     replications=args.replications, seed=args.seed, target=args.target, answers=args.answers)
     files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
     if result.split is not None:
         files += halves_file(args, [("exploration", result.split.exploration_rows),
                                     ("confirmation", result.split.confirmation_rows)])
-    emit_report(args, result, [args.data, args.target], files)  # one report for every format
+    emit_report(args, result, [args.data, args.target, args.answers], files)  # one report for every format
     if args.draft and not result.exploration.draft.usable:
         say(args, "The draft model declares no factor (too few items per factor); it holds comments only")
     return 0

@@ -60,6 +60,14 @@ def model_name(name: str) -> str:
     return written_name(name)
 
 
+def answers_statement(coding, items: tuple[str, ...] | None = None) -> str:
+    """An 'answers' statement (language.spec.AnswerCoding) written in the model language, for ``items`` (None: for
+    every item), so that a draft model reads the answers recorded as words as the exploration did."""
+    listed = ", ".join((f'"{a.word}"' if a.word is not None else f"{a.number:.15g}") + f" = {a.code:.15g}"
+                       for a in coding.answers)
+    return f"answers {listed}" + (f" for {', '.join(model_name(x) for x in items)}" if items else "")
+
+
 def factor_names(count: int, items: tuple[str, ...]) -> tuple[str, ...]:
     """factor1, factor2, ...; an underscore is added while a name would equal an item's."""
     taken = {name.casefold() for name in items}

@@ -131,6 +131,35 @@ def _parse_model(text: str, source: str) -> Spec:
     return spec
 
 
+def read_answers_file(path: str | Path) -> tuple[AnswerCoding, ...]:
+    """The 'answers' statements of a file that holds nothing else (comments and blank lines aside): how ``explore``
+    reads answers recorded as words before there is a model.  Each statement is read by the model's own grammar and
+    builder; any other statement is an error naming its line, since explore would not use it."""
+    source = str(path)
+    text = normalise_line_ends(decode_model_bytes(input_bytes(path, "answers file", ModelError, MAX_MODEL_BYTES), source))
+    if "\x00" in text:
+        raise ModelError("the answers file contains a NUL character; is this a binary file?", Location(source, 1, 1))
+    lines = tuple(text_lines(text))
+    try:
+        tree = _parser().parse(text if text.endswith("\n") else text + "\n")
+    except UnexpectedInput as exc:
+        raise _syntax_error(exc, source, lines) from None
+    builder = _Builder(source, text, lines)
+    codings = []
+    for stmt in tree.children:
+        if stmt.data != "answers_stmt":
+            where = builder.loc(stmt)
+            word = lines[where.line - 1].split()[0] if lines[where.line - 1].split() else stmt.data
+            raise ModelError(f"an answers file holds 'answers' statements only (explore finds the factors itself); "
+                             f"this line is a '{printable(word)}' statement: remove it, or keep the model in a file "
+                             f"of its own for 'fit'", where, lines[where.line - 1])
+        codings.append(builder.answers(stmt))
+    if not codings:
+        raise ModelError("the answers file holds no 'answers' statement; write one such as 'answers \"Disagree\" = 1, "
+                         "\"Agree\" = 2'", Location(source, max(1, len(lines)), 1))
+    return tuple(codings)
+
+
 # ---------------------------------------------------------------- syntax errors
 
 

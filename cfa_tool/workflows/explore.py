@@ -18,6 +18,9 @@ import pandas as pd
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.exploration import (CountNote, CountRule, Exploration, ExploreSettings, ExtractionMethod, RotationMethod,
                                   RotationSpec, explore_correlations, from_ordinal_moments, from_sample_moments)
+from cfa_tool.data.answer_words import coding_json, coding_record
+from cfa_tool.exploration.choices import Placement
+from cfa_tool.exploration.draft import answers_statement, model_name
 from cfa_tool.exploration.factor_count import CLOSE_RMSEA, FitStep, fit_sequence
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
@@ -82,6 +85,9 @@ class ExploreResult(Presentable):
     order: tuple[int, ...] = field(default=(), repr=False)  # items sorted by factor, then by loading
     #: values in the item columns that look like no answers (assessment.admissibility.Problem): first in every view
     data_problems: tuple = ()
+    #: the answers file's statements for the draft model's items (the draft reads the data file as explore did)
+    answer_statements: tuple[str, ...] = ()
+    answer_coding: tuple = ()  # how answers recorded as words were coded (data.answer_words.coding_record)
 
     @property
     def factors(self) -> int:
@@ -94,6 +100,9 @@ class ExploreResult(Presentable):
     @property
     def draft_text(self) -> str:
         text = self.exploration.draft.text
+        if self.answer_statements and self.exploration.draft.usable:  # the words read as the exploration read them
+            text += ("# The answers recorded as words, coded as the answers file said:\n"
+                     + "".join(line + "\n" for line in self.answer_statements))
         if self.requested is None and self._middle_count() == 0:  # the one factor shown for inspection only
             text = ("# No factor was recommended: the three rules for the number of factors gave 0, so these items may\n"
                     "# share no common factor. This one-factor draft is for inspection only.\n") + text
@@ -154,7 +163,7 @@ class ExploreResult(Presentable):
             "problems": self.problems(),
             "data_problems": [p.to_dict() for p in self.data_problems],
             "data": {"source": self.source, "rows_read": self.rows_read, "rows_used": ex.data.n_obs,
-                     "correlations": ex.data.kind.value},
+                     "correlations": ex.data.kind.value, "answer_coding": coding_json(self.answer_coding)},
             "items": list(self.items),
             "factor_count": {
                 "recommended": count.recommended,
@@ -307,11 +316,12 @@ def column_role(name: str) -> str | None:
     return None
 
 
-def _text_columns_phrase(frame: pd.DataFrame, numeric: tuple[str, ...]) -> str:
+def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: tuple = ()) -> str:
     """The columns left out because they hold text (answers written as words among them: 'yes'/'no'), named, with
-    the way to explore them (new-user trial: six yes/no items left out without a word); columns of dates or times
+    the way to explore them (new-user trial: six yes/no items left out without a word): an answers file
+    (--answers); with one given, the first cell of each that is not among its words; columns of dates or times
     (an Excel date column, say) are named as dates, not as text."""
-    left = [c for c in frame.columns if str(c) not in numeric and frame[c].notna().any()]
+    left = [c for c in frame.columns if str(c) not in taken and frame[c].notna().any()]
     dates = [str(c) for c in left if frame[c].dtype.kind in "mM" or isinstance(frame[c].dtype, pd.DatetimeTZDtype)]
     text = [str(c) for c in left if str(c) not in dates]
 
@@ -319,10 +329,205 @@ def _text_columns_phrase(frame: pd.DataFrame, numeric: tuple[str, ...]) -> str:
         return ", ".join(printable(c) for c in names[:10]) + (f" and {len(names) - 10} more" if len(names) > 10 else "")
 
     said = f" Left out as dates or times: {listed(dates)}." if dates else ""
-    if text:
-        said += (f" Left out as text (not numbers): {listed(text)}; answers written as words (yes/no, agree) must be "
-                 f"recoded as numbers to be explored.")
+    if text and codings:
+        general = next((c for c in codings if not c.items), None)
+        unlisted = [printable(c) + (f" ('{printable(cell)}' in data row {row})" if cell is not None else "")
+                    for c in text[:10] for cell, row in [_first_unlisted(frame[c], general)]]
+        said += (f" Left out as text holding none of the answers file's words (--answers): "
+                 + ", ".join(unlisted) + (f" and {len(text) - 10} more" if len(text) > 10 else "") + ".")
+    elif text:
+        from cfa_tool.data.answer_scales import suggested_statement
+
+        statement = next((s for s in (suggested_statement(frame[c].to_numpy(dtype=object)) for c in text) if s), None)
+        said += (f" Left out as text (not numbers): {listed(text)}; answers written as words (yes/no, agree) are "
+                 f"explored with an answers file (--answers FILE) whose 'answers' statement gives each word its code"
+                 + (f", such as the line: {statement}" if statement else "") + ".")
     return said
+
+
+def _first_unlisted(column: pd.Series, coding) -> tuple[object, int | None]:
+    """The first cell of a text column that holds a word the 'answers' statement ``coding`` does not list (None,
+    None when there is none, or no statement for every item)."""
+    from cfa_tool.data.moments import row_numbers
+    from cfa_tool.language.spec import answer_key
+    from cfa_tool.numbers import number as strict_number
+
+    if coding is None:
+        return None, None
+    words = coding.codes_by_word()
+    for row, cell in zip(row_numbers(column), column.to_numpy(dtype=object)):
+        if isinstance(cell, str) and cell.strip() and strict_number(cell.strip()) is None \
+                and answer_key(cell) not in words:
+            return cell, int(row)
+    return None, None
+
+
+def _answer_codings(answers) -> tuple:
+    """The 'answers' statements of an answers file (language.parser.read_answers_file), or () without one."""
+    if answers is None:
+        return ()
+    if not isinstance(answers, (str, Path)):
+        raise OptionError(f"answers must be the path of an answers file (a file of 'answers' statements), not "
+                          f"{type(answers).__name__}")
+    from cfa_tool.language.parser import read_answers_file
+
+    return read_answers_file(answers)
+
+
+def _word_columns(frame: pd.DataFrame, numeric: tuple[str, ...], codings: tuple) -> tuple[str, ...]:
+    """The columns of text an answers file covers: those its statements name with 'for', and those holding a word
+    the statement for every item lists (a cell it does not list is then an error naming the cell, never a column
+    silently left out for a typing error)."""
+    from cfa_tool.language.spec import answer_key
+
+    named = {x for c in codings for x in c.item_names}
+    general = next((c for c in codings if not c.items), None)
+    absent = next((n for c in codings for n in c.items if n.text not in set(map(str, frame.columns))), None)
+    if absent is not None:
+        from cfa_tool.errors import ModelError
+
+        raise ModelError(f"the data have no column '{printable(absent.text)}'", absent.location)
+    out = []
+    for column in frame.columns:
+        name = str(column)
+        if name in numeric and name not in named:
+            continue
+        if name in named:
+            out.append(name)
+            continue
+        if frame[column].dtype.kind in "mM" or general is None:
+            continue
+        listed = general.codes_by_word()
+        if any(isinstance(v, str) and answer_key(v) in listed for v in frame[column].dropna().to_numpy(dtype=object)):
+            out.append(name)  # a column holding its words: any other cell is named by the statement's own reading
+    return tuple(out)
+
+
+def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str, ...], str, tuple[str, ...]]:
+    """The items explored by default (every column holding numbers, or the words of the answers file, except row
+    numbers, ids, codes of categories and columns named for another part) and the note that says which and why."""
+    from cfa_tool.data.labels import labelled_codes, own_labels
+
+    frame, source = first.frame.set_axis(columns, axis=1), first.source
+    numeric = _numeric_columns(frame)
+    ids = [c for c in numeric if _looks_like_row_ids(frame[c])]
+    roles = [c for c in numeric if c not in ids and column_role(c) is not None]
+    coded = [c for c in labelled_codes(frame, first.value_labels) if c in numeric and c not in ids + roles
+             and own_labels(c, first.value_labels)]
+    worded = _word_columns(frame, numeric, codings)
+    chosen = tuple(c for c in columns if c in worded or (c in numeric and c not in ids + roles + coded))
+    if codings and not worded:
+        raise OptionError(f"no column of {source} holds only the words of the answers file's statements (--answers); "
+                          f"name the items with --items to see which cells differ")
+    said = f"every column of {source} that holds numbers" + (" or the words of the answers file" if worded else "")
+    note = (f"Items: {said} ({len(chosen)}); choose them with --items."
+            + (f" Left out as row numbers or ids (every value a different whole number): "
+               f"{', '.join(printable(c) for c in ids)}." if ids else "")
+            + (f" Left out as codes of categories (every value has a value label of its own, as a "
+               f"department's do; the items share their answer scale's labels): "
+               f"{', '.join(printable(c) for c in coded)} (name them in --items to explore them)."
+               if coded else "")
+            + (" Left out by their names, as columns of the sampling design, ids, groups or the survey's "
+               "records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
+               + " (name them in --items to explore them)." if roles else "")
+            + _text_columns_phrase(frame, numeric + worded, codings))
+    return chosen, note, worded
+
+
+def _refuse_too_few(chosen: tuple[str, ...], scan, codings: tuple) -> None:
+    """The error when fewer than 3 columns can be explored by default, with the way to read answers recorded as
+    words (an answers file, with the statement its words suggest) when no answers file was given."""
+    if len(chosen) >= 3:
+        return
+    found = (f"only {len(chosen)} of its columns hold{'s' if len(chosen) == 1 else ''} answers as numbers "
+             f"({', '.join(printable(c) for c in chosen)})" if chosen else "none of its columns holds numbers")
+    hint = scan.sheet_hint() or "; name the items with --items"
+    if not codings and not scan.sheet_hint():
+        from cfa_tool.data.answer_scales import suggested_statement
+
+        frame = scan.frame
+        numeric = _numeric_columns(frame)
+        text = [c for c in frame.columns if str(c) not in numeric and frame[c].dtype.kind not in "mM"
+                and frame[c].notna().any()]
+        statement = next((s for s in (suggested_statement(frame[c].to_numpy(dtype=object)) for c in text) if s), None)
+        if text:
+            hint += ("; answers recorded as words are read with an answers file (--answers FILE) whose 'answers' "
+                     "statement gives each word its code" + (f", such as the line: {statement}" if statement else ""))
+    raise DataError(f"{scan.source}: {found}, and an exploratory factor analysis needs at least 3 items" + hint)
+
+
+def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str, codings: tuple) -> None:
+    """An item named in --items that holds words no answers file codes: an error naming the column, the cell and
+    what explore takes (an answers file, with the statement the words suggest); cells holding digits or other
+    values are left to the reading of the items (data.moments), which names them."""
+    from cfa_tool.data.answer_scales import suggested_statement
+    from cfa_tool.data.moments import row_numbers
+    from cfa_tool.numbers import number as strict_number
+
+    named = {x for c in codings for x in c.item_names}
+    if any(not c.items for c in codings):
+        return  # a statement for every item: its own reading names any cell it does not list
+    for name in chosen:
+        column = frame[name]
+        if name in named or pd.api.types.is_numeric_dtype(column) or column.dtype.kind in "mM":
+            continue
+        values = column.to_numpy(dtype=object)
+        for row, cell in zip(row_numbers(column), values):
+            if not (isinstance(cell, str) and cell.strip() and strict_number(cell.strip()) is None
+                    and not any(ch.isdigit() for ch in cell) and cell.strip().lower() not in ("true", "false")):
+                continue
+            shown = printable(cell.strip() if len(cell.strip()) <= 40 else cell.strip()[:37] + "...")
+            statement = suggested_statement(values)
+            where = f"{source}: column '{printable(name)}' holds words ('{shown}' in data row {row}), and explore analyses numbers"
+            if codings:
+                raise DataError(f"{where}: add the column to an 'answers' statement of the answers file (--answers) "
+                                f"with 'for', or take it out of --items")
+            raise DataError(f"{where}: give explore an answers file (--answers FILE) whose 'answers' statement says "
+                            f"what each word means" + (f", such as the line: {statement}" if statement else "")
+                            + "; or recode the answers as numbers")
+
+
+def _explored_spec(chosen: tuple[str, ...], codings: tuple, answers, worded: tuple[str, ...] | None):
+    """The items explored as the model fit reads data for (pipeline.inputs.read_inputs_with_notes): one factor
+    of them, with the answers file's statements; with ``worded`` (items chosen by default: the columns of text the
+    file covers) a statement for every item covers those columns only (the others hold numbers)."""
+    from dataclasses import replace
+
+    from cfa_tool.errors import Location, ModelError
+    from cfa_tool.exploration.draft import factor_names
+    from cfa_tool.language.checks import check_spec
+    from cfa_tool.language.spec import Factor, Name, Spec
+
+    where = Location(str(answers) if answers is not None else "<explore>", 1, 1)
+    for coding in codings:
+        for name in coding.items:
+            if name.text not in chosen:
+                raise ModelError(f"'{printable(name.text)}' is not one of the items explored"
+                                 + ("; name it in --items, or take it out of the statement" if worded is None else
+                                    " (the data have no such column)"), name.location)
+    factor = Factor(Name(factor_names(1, chosen)[0], where), tuple(Name(c, where) for c in chosen))
+    spec = Spec(source=where.source, text="", title=None, factors=(factor,), answers=codings)
+    check_spec(spec)  # the statements' own checks: each word once, each item once, one statement for every item
+    if worded is not None and codings:
+        named = {x for c in codings for x in c.item_names}
+        codings = tuple(replace(c, items=tuple(Name(x, c.location) for x in worded if x not in named))
+                        if not c.items else c for c in codings)
+        spec = replace(spec, answers=tuple(c for c in codings if c.items))
+    text = "\n".join(answer_lines(spec, chosen, every=False) + [f"factor {factor.name.text}: "
+                                                                  + ", ".join(model_name(c) for c in chosen)])
+    return replace(spec, text=text + "\n")
+
+
+def answer_lines(spec, items: tuple[str, ...], every: bool = True) -> list[str]:
+    """The model's 'answers' statements for ``items`` (those of a draft model, say), in the model language: each
+    statement with the items it covers among them ('for' left out when it covers all of them and ``every``)."""
+    coverage = spec.answer_codings()
+    out = []
+    for coding in spec.answers:
+        covered = tuple(x for x in items if coverage.get(x) is coding)
+        if covered:
+            out.append(answers_statement(coding, None if every and len(covered) == len(items) else covered))
+    return out
 
 
 def _looks_like_row_ids(column: pd.Series) -> bool:
@@ -347,7 +552,7 @@ def _factor_choice(factors) -> int | None:
 def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = RotationMethod.QUARTIMIN,
             extraction: str | ExtractionMethod = ExtractionMethod.MAXIMUM_LIKELIHOOD, ordinal=None,
             split: int | None = None, sheet: str | None = None, missing_codes=(), keep=(), replications: int = 100,
-            seed: int = 0, threshold: float = 0.30, target=None) -> ExploreResult:
+            seed: int = 0, threshold: float = 0.30, target=None, answers=None) -> ExploreResult:
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
     ``items``: column names, or text 'a, b, c' with 'a..b' for a span of columns (default: every column that
@@ -358,58 +563,51 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     factors) or none; ``extraction``: maximum-likelihood (default) or least-squares; ``ordinal``: 'all' or
     items to analyse by polychoric correlations; ``split``: a seed: explore one random half of the rows and fit
     the draft model on the other; ``replications`` and ``seed``: of parallel analysis and the rotation's random
-    starts; ``threshold``: the loading at which an item counts on a factor in the draft model.
+    starts; ``threshold``: the loading at which an item counts on a factor in the draft model; ``answers``: the
+    path of an answers file, whose 'answers' statements (as a model file writes them) code answers recorded as
+    words; the draft model carries them.  The data are read for the items as fit reads them for a model's.
     """
     from cfa_tool import options
     from cfa_tool.pipeline import inputs as api
-    from cfa_tool.data.filters import apply_filters, parse_filter
-    from cfa_tool.data.labels import labelled_codes, own_labels
     from cfa_tool.data.moments import row_numbers
 
     if api.summary_source(data):
         raise OptionError(f"'{data}' holds summary statistics; explore needs the rows of answers (a correlation "
                           f"matrix alone can be explored from Python: 'from cfa_tool.exploration import "
                           f"explore_correlations, from_correlations')")
-    loaded = api.load_data(data, sheet, missing_codes)
-    frame, source = loaded.frame, loaded.source
-    columns = [str(c) for c in frame.columns]
+    codings = _answer_codings(answers)
+    # a first reading names the columns and chooses the default items; the data are then read for those items as
+    # fit reads them for a model's (pipeline.inputs.read_inputs_with_notes): --missing-codes and words or labels
+    # that say no answer in the item columns only, the answers file's words coded, row filters, odd values
+    scan = api.load_data(data, sheet)
+    source = scan.source
+    columns = [str(c) for c in scan.frame.columns]
     if len(set(columns)) != len(columns):
         raise OptionError(f"{source}: the column name '{next(c for c in columns if columns.count(c) > 1)}' appears twice")
-    frame = frame.set_axis(columns, axis=1)
-    rows_read = len(frame)
-    notes: list[str] = list(loaded.notes)
-    keep = api.keep_option(keep)
-    if keep:
-        frame, filter_notes = apply_filters(frame, [parse_filter(k) for k in keep], source, loaded.value_labels)
-        notes += filter_notes
     chosen = item_names(items, columns, source)
-    if chosen is None:
-        numeric = _numeric_columns(frame)
-        ids = [c for c in numeric if _looks_like_row_ids(frame[c])]
-        roles = [c for c in numeric if c not in ids and column_role(c) is not None]
-        coded = [c for c in labelled_codes(frame, loaded.value_labels) if c in numeric and c not in ids + roles
-                 and own_labels(c, loaded.value_labels)]
-        constant = [c for c in numeric if c not in ids + roles + coded and frame[c].nunique(dropna=True) <= 1]
-        chosen = tuple(c for c in numeric if c not in ids and c not in roles and c not in coded and c not in constant)
-        notes.append(f"Items: every column of {source} that holds numbers ({len(chosen)}); choose them with --items."
-                     + (f" Left out as row numbers or ids (every value a different whole number): "
-                        f"{', '.join(printable(c) for c in ids)}." if ids else "")
-                     + (f" Left out as codes of categories (every value has a value label of its own, as a "
-                        f"department's do; the items share their answer scale's labels): "
-                        f"{', '.join(printable(c) for c in coded)} (name them in --items to explore them)."
-                        if coded else "")
-                     + (f" Left out as constant (one value in every row, which says nothing of the other "
-                        f"answers): {', '.join(printable(c) for c in constant)}." if constant else "")
-                     + (" Left out by their names, as columns of the sampling design, ids, groups or the survey's "
-                        "records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
-                        + " (name them in --items to explore them)." if roles else "")
-                     + _text_columns_phrase(frame, numeric)
+    by_default = chosen is None
+    item_note = None
+    if by_default:
+        chosen, item_note, worded = _default_items(scan, columns, codings)
+        _refuse_too_few(chosen, scan, codings)
+    spec = _explored_spec(chosen, codings, answers, worded if by_default else None)
+    if not by_default:
+        _refuse_text_items(scan.frame.set_axis(columns, axis=1), chosen, source, codings)
+    spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, missing_codes, api.keep_option(keep))
+    frame = loaded.frame
+    rows_read = len(loaded.read_frame) if loaded.read_frame is not None else len(frame)
+    empty = next((c for c in chosen if not frame[c].notna().any()), None)
+    if empty is not None and not by_default:  # the reading of the items would say 'take it out of the model'
+        raise DataError(f"{source}: column '{printable(empty)}' has no answers"
+                        + (" in the rows the row filters kept" if loaded.read_frame is not None else " at all")
+                        + " (every cell is empty); take it out of --items, or check the data file")
+    if by_default:
+        constant = [c for c in chosen if frame[c].nunique(dropna=True) <= 1]
+        chosen = tuple(c for c in chosen if c not in constant)
+        notes.append(item_note + (f" Left out as constant (one value in every row, which says nothing of the other "
+                                  f"answers): {', '.join(printable(c) for c in constant)}." if constant else "")
                      + " Check that no other column (age, grade, a code) is among the items.")
-        if len(chosen) < 3:
-            found = (f"only {len(chosen)} of its columns hold{'s' if len(chosen) == 1 else ''} answers as numbers "
-                     f"({', '.join(printable(c) for c in chosen)})" if chosen else "none of its columns holds numbers")
-            raise DataError(f"{source}: {found}, and an exploratory factor analysis needs at least 3 items"
-                            + (loaded.sheet_hint() or "; name the items with --items"))
+        _refuse_too_few(chosen, scan, codings)
     requested = _factor_choice(factors)
     rotation_method = options.choice(RotationMethod, rotation, "the rotation")
     extraction_method = options.choice(ExtractionMethod, extraction, "the extraction")
@@ -433,8 +631,9 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
                               f"{len(target_file.factors)} factor columns")
     ordinal_items = _ordinal_items(ordinal, chosen)
     # values that look like no answers among the rows read (both halves of a split): first in every view
-    data_problems = api.odd_value_problems(api.screened(frame, tuple(chosen), source, loaded.non_answers,
-                                                          api.kept_cautions(loaded.cautions, frame)))
+    # and items answered alike by all rows but a few, as fit names them (pipeline.inputs.few_answers_problems)
+    screened = api.screened(frame, tuple(chosen), source, loaded.non_answers, loaded.cautions)
+    data_problems = api.odd_value_problems(screened) + api.few_answers_problems(_ItemsRead(tuple(chosen)), screened)
     halves = None
     if split is not None:
         split = options.seed(split)
@@ -460,11 +659,24 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
         with blas_threads_for(correlations.p):
             fits = fit_sequence(correlations, largest)
     fits = tuple(f for f in fits if f.factors <= max(largest, exploration.count.recommended + 2))
+    drafted = tuple(p.item for p in exploration.draft.placements
+                    if p.placement is Placement.ON_FACTOR and exploration.draft.written[p.factor])
+    statements = tuple(answer_lines(spec, drafted))
     split_result = None
     if halves is not None:
-        split_result = _confirm(exploration, halves, split, source, ordinal_items)
+        split_result = _confirm(exploration, halves, split, source, statements)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
-                         sorted_items(exploration), data_problems)
+                         sorted_items(exploration), data_problems, statements, coding_record(spec))
+
+
+@dataclass(frozen=True)
+class _ItemsRead:
+    """The items explored, as pipeline.inputs.few_answers_problems reads a fit's (its nearly constant items; the
+    coverage of items with gaps is in the exploration's own notes)."""
+
+    observed: tuple[str, ...]
+    missing_data: None = None
+    n_obs: int = 0
 
 
 def _ordinal_items(ordinal, items: tuple[str, ...]) -> tuple[str, ...]:
@@ -500,18 +712,28 @@ def _correlations(frame, names, source, ordinal_items, notes):
             notes.append(f"{left} rows answered none of the items and were left out.")
         return from_ordinal_moments(moments)
     values = _numeric_rows(frame, names, source)
-    gaps = int(np.isnan(values).any(axis=1).sum())
+    absent = np.isnan(values)
+    empty = int(absent.all(axis=1).sum())  # rows that answered none of the items: left out, as fit leaves them out
+    gaps = int(absent.any(axis=1).sum()) - empty
     missing = "full-information" if gaps else "listwise"
     moments = sample_moments(frame, names, source, missing=missing)
     if gaps:
         notes.append(f"{gaps} rows miss some answers; the correlations are the maximum-likelihood (EM) estimates from "
                      f"every answer, and N is the {moments.n_obs} rows with at least one answer.")
+    if empty:
+        notes.append(f"{empty} of {len(values)} rows answered none of the items and were left out.")
     return from_sample_moments(moments)
 
 
-def _confirm(exploration: Exploration, halves, seed: int, source: str, ordinal_items) -> SplitHalves:
+def _confirm(exploration: Exploration, halves, seed: int, source: str, statements: tuple[str, ...]) -> SplitHalves:
+    """The draft model fitted on the confirmation half.  Its rows were read once, with the answers file's words
+    coded, so the draft is fitted to their codes, and the fit keeps the coding that the draft model file's
+    ``statements`` state (its methods paragraph says how the words were coded, as a fit of that file does)."""
+    from dataclasses import replace
+
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.errors import CfaError
+    from cfa_tool.language.parser import parse_model
 
     first, second, confirming = halves
     if not exploration.draft.usable:
@@ -523,6 +745,9 @@ def _confirm(exploration: Exploration, halves, seed: int, source: str, ordinal_i
         return SplitHalves(seed, first, second, None, f"the draft model could not be fitted on the confirmation half: "
                                                       f"{exc}")
     fitted = replace_source(fitted, f"{source} (confirmation half, {len(second)} rows)")
+    if statements:
+        written = parse_model(exploration.draft.text + "".join(line + "\n" for line in statements), "draft model")
+        fitted = replace(fitted, data=replace(fitted.data, answer_coding=coding_record(written)))
     return SplitHalves(seed, first, second, fitted)
 
 
