@@ -88,6 +88,9 @@ class ProblemKind(enum.Enum):
     GROUP_WEIGHTED_OUT = ("group whose rows all have weight 0", "group weighted out", False)
     # not of the solution but of the data scored with an earlier fit (workflows.factor_scores): rows in groups the fit
     # does not have (no scores), and answers outside those of the rows the fit analysed (scores extrapolate)
+    # not an impossible solution but a model these data do not support: CFI or RMSEA beyond the bounds of poor fit
+    # (assessment.fit_indices.POOR_FIT_BOUNDS, read from the figures the report says to read)
+    POOR_FIT = ("poor fit", "poor fit", False)
     UNKNOWN_GROUPS_SCORED = ("rows in groups the fit does not have", "groups the fit lacks", False)
     ANSWERS_BEYOND_FITTED = ("answers beyond the fitted rows", "answers beyond the fit's", False)
 
@@ -551,3 +554,34 @@ def refuse_inadmissible_saved_fit(payload: dict, problems: tuple[Problem, ...], 
     why = f" (it has {first.phrase()})" if first is not None else ""
     raise OptionError(f"{source}: the fitted solution is not admissible{why}, so {purpose}; fit a model whose solution "
                       f"is admissible and use that result")
+
+
+def poor_fit_problems(read) -> tuple[Problem, ...]:
+    """A caution when the fit figures the report says to read (assessment.fit_indices.IndicesToRead, or None) lie
+    beyond the bounds of poor fit (:data:`cfa_tool.assessment.fit_indices.POOR_FIT_BOUNDS`): the loadings, reliability
+    and scores then describe a model the data do not support, and a reader of those tables should hear it first."""
+    from cfa_tool.assessment.fit_indices import POOR_FIT_BOUNDS as BOUND
+    from cfa_tool.numerics.plain import decimals_beside
+
+    if read is None or read.df <= 0:
+        return ()
+
+    def shown(value: float, bound: float) -> str:
+        text = f"{value:.{decimals_beside(value, bound)}f}"
+        return text[1:] if text.startswith("0.") else text
+
+    prefix = "" if read.test == "normal" else "robust "
+    cfi_bound, rmsea_bound = (f"{BOUND[k]:.2f}"[1:] for k in ("cfi", "rmsea"))
+    missed = []
+    if np.isfinite(read.cfi) and read.cfi < BOUND["cfi"]:
+        missed.append(f"{prefix}CFI {shown(read.cfi, BOUND['cfi'])}, below {cfi_bound}")
+    if np.isfinite(read.rmsea) and read.rmsea > BOUND["rmsea"]:
+        missed.append(f"{prefix}RMSEA {shown(read.rmsea, BOUND['rmsea'])}, above {rmsea_bound}")
+    if not missed:
+        return ()
+    return (Problem(ProblemKind.POOR_FIT, (), None,
+                    f"The model fits these data poorly ({'; '.join(missed)}: bounds of common practice, not laws; "
+                    f"MacCallum, Browne & Sugawara 1996), so its loadings, reliability and any scores describe a model "
+                    f"the data do not support.",
+                    "read the largest residual correlations and modification indices and compare rival models before "
+                    "interpreting the estimates; a model changed because of these data needs new data to confirm it."),)

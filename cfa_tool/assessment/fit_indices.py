@@ -32,6 +32,10 @@ from cfa_tool.numerics.linalg import log_det_pd, spd_inverse
 #: The guide values the reports print beside the indices and the configural step of an invariance test is judged by
 #: (Hu & Bentler 1999; common practice, not laws): CFI and TLI at least these, RMSEA and SRMR at most these.
 GUIDE_VALUES = {"cfi": 0.95, "tli": 0.95, "rmsea": 0.06, "srmr": 0.08}
+#: Beyond these a model's fit is called poor and the report cautions first (common practice, conventions, not laws):
+#: RMSEA above .10 (MacCallum, Browne & Sugawara 1996: .08-.10 mediocre, above .10 poor), CFI below .90 (the older
+#: criterion of Bentler & Bonett 1980, recalled from memory).
+POOR_FIT_BOUNDS = {"cfi": 0.90, "rmsea": 0.10}
 
 
 @dataclass(frozen=True)
