@@ -14,7 +14,12 @@ blocks, phi_ab = l_a' R_ab l_b / (l_a'l_a l_b'l_b), which is the population valu
 when R_ab = l_a phi_ab l_b' (a Spearman-style correction for attenuation), shrunk
 towards zero if needed so that they form a positive-definite matrix.  A higher-order
 factor's paths take their signs from the first principal axis of the correlations
-of the factors below it.  Targets for every matrix entry are then mapped to theta by
+of the factors below it.  The variance of a factor below a higher-order factor is
+its disturbance, the part the factor above does not explain: its total variance is
+that disturbance plus what the factor above explains, which the start takes as half
+the total when the disturbance is free and as the rest of the total when it is fixed
+(all of it at 0, the factor then being a multiple of the one above; Bollen 1989,
+ch. 8, for the total variance of a factor, B Phi B' + Psi).  Targets for every matrix entry are then mapped to theta by
 least squares, which respects equality constraints and effects coding.
 """
 
