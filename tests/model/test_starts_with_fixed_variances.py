@@ -249,3 +249,17 @@ def test_a_factor_of_two_factors_is_a_model_error_naming_its_line():
                      "fix loading(a, a1) = 1\n", _data())
     assert caught.value.location.line == 3
     assert "two indicators and no correlation" in str(caught.value)
+
+
+def test_a_first_order_factor_that_is_a_multiple_of_the_general_one_is_not_called_inadmissible(hs_data):
+    """Holzinger & Swineford (1939) with the disturbance of textual fixed at 0: the factors' covariance matrix is
+    singular by that constraint (textual's correlation with the general factor is 1), which rounding put an
+    eigenvalue of -1e-17 below zero and flagged as 'not positive definite' (a structural zero is not a problem of
+    the solution: the disturbances' matrix Psi, of which the factors' is (I - B)^-1 Psi (I - B)^-T, has the
+    constraint's 0 on its diagonal and is positive definite elsewhere; Bollen 1989, ch. 8)."""
+    result = cfa_tool.fit("factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+                          "factor general: visual, textual, speed\nfix variance(textual) = 0\n"
+                          "fix loading(textual, x4) = 1\n", hs_data)
+    assert result.converged and result.admissible and not result.problems, result.problems
+    path = next(r for r in result.estimates if r.kind == "loading" and tuple(r.variables) == ("general", "textual"))
+    assert path.standardized == pytest.approx(1.0, abs=1e-9)
