@@ -233,12 +233,14 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     target = np.zeros(len(table.parameters))
     e, f, x = plan.loads
     target[e] = std_loading[f, x] * sd[x] / np.sqrt(total_var[f])
-    explained = np.where(plan.endogenous, _explained(total_var, plan.disturbance), 0.0)
-    e, f, x = plan.paths
-    if len(e):
-        target[e] = path_sign[f, x] * np.sqrt(explained[x] / total_var[f])
     e, f = plan.variances
-    target[e] = total_var[f] - explained[f]
+    if plan.higher:  # a lower factor's variance parameter is its disturbance: its total less what is explained
+        explained = np.where(plan.endogenous, _explained(total_var, plan.disturbance), 0.0)
+        target[e] = total_var[f] - explained[f]
+        e, f, x = plan.paths
+        target[e] = path_sign[f, x] * np.sqrt(explained[x] / total_var[f])
+    else:
+        target[e] = total_var[f]
     e, a, b = plan.covariances
     if len(e):
         r = np.minimum(np.maximum((weights @ R @ weights.T)[a, b], -0.9), 0.9)
