@@ -333,7 +333,9 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
     d = phi.diagonal()
     if len(latent) > 1 and np.all(d > 0):
         corr = phi / np.sqrt(np.outer(d, d))
-        beyond = np.abs(corr) > 1.0
+        # a tolerance of rounding: a factor below a higher-order one whose disturbance is fixed at 0 is a multiple
+        # of it (a correlation of exactly 1 and a singular matrix by the model's constraint, not a Heywood case)
+        beyond = np.abs(corr) > 1.0 + 1e-10
         pairs = np.nonzero(np.tril(beyond, -1)) if beyond.any() else ((), ())  # (tril only when some entry is)
         for i, j in zip(*(np.asarray(k).tolist() for k in pairs)):  # pairs i > j, row by row
             out.append(Problem(
@@ -343,7 +345,7 @@ def matrix_problems(mats: ModelMatrices, observed: tuple[str, ...], latent: tupl
                 "The two factors are not distinct in these data: consider one factor for both item sets, or "
                 "look for cross-loadings and residual covariances that the model leaves out.", group))
         if (not any(p.kind is ProblemKind.FACTOR_CORRELATION_BEYOND_ONE for p in out)
-                and cholesky_log_det(phi) is None and np.linalg.eigvalsh(phi)[0] < 0):  # a factorisation: positive definite
+                and cholesky_log_det(phi) is None and np.linalg.eigvalsh(corr)[0] < -1e-10):  # a factorisation: positive definite
             out.append(Problem(
                 ProblemKind.FACTOR_COVARIANCES_NOT_POSITIVE_DEFINITE, tuple(reference_text("factor_variance", (f,)) for f in latent),
                 float(np.linalg.eigvalsh(corr)[0]),

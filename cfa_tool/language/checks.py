@@ -327,6 +327,27 @@ def _gkey(ref: ParameterRef) -> tuple:
     return (ref.group, ref.key())
 
 
+def _check_zero_disturbances(spec: Spec, fixed: dict[tuple, tuple[float, ParameterRef]], lower: set[str]) -> None:
+    """A factor below a higher-order factor whose variance (its disturbance, the part the factor above does not
+    explain) is fixed at 0 in every group is a multiple of the factor above, which sets no scale for it: fixed
+    by the user, the variance takes the place of the automatic marker, so some loading of the factor, or its
+    loading on the factor above, must be fixed at a value other than 0 (Bollen 1989, ch. 7: every latent
+    variable needs a scale)."""
+    loads = {ref.names for (group, (kind, _)), (value, ref) in fixed.items()
+             if kind == "loading" and group is None and value != 0.0}
+    for (group, (kind, names)), (value, ref) in fixed.items():
+        if kind != "variance" or value != 0.0 or group is not None or names[0] not in lower:
+            continue
+        f = names[0]
+        if any(f in pair for pair in loads):
+            continue
+        above = next(g.name.text for g in spec.factors if any(i.text == f for i in g.indicators))
+        first = next(g.indicators[0].text for g in spec.factors if g.name.text == f)
+        raise _fail(spec, f"{ref} is fixed to 0: '{f}' is then a multiple of '{above}', which sets no scale for "
+                          f"'{f}' (a fixed variance takes the place of its marker); also fix one of its loadings, "
+                          f"such as 'fix {ParameterRef('loading', (f, first), ref.location)} = 1'", ref.location)
+
+
 def _check_contradictions(spec: Spec) -> None:
     fixed: dict[tuple, tuple[float, ParameterRef]] = {}
     latent = set(spec.factor_names)
@@ -347,6 +368,7 @@ def _check_contradictions(spec: Spec) -> None:
             if key in fixed and fixed[key][0] != setting.value:
                 raise _fail(spec, f"{ref} is fixed to {setting.value:g} here but to {fixed[key][0]:g} on line {fixed[key][1].location.line}", ref.location)
             fixed[key] = (setting.value, ref)
+    _check_zero_disturbances(spec, fixed, latent & indicated)
     for ref in spec.freed:
         if _gkey(ref) in fixed:
             raise _fail(spec, f"{ref} is both fixed (line {fixed[_gkey(ref)][1].location.line}) and freed", ref.location)

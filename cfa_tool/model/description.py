@@ -125,6 +125,7 @@ def parameter_words(kind: str, names: tuple[str, ...], group: str | None = None,
         text, article = f"threshold {names[1]} of {names[0]}", False
     else:
         text = {"factor_variance": f"variance of factor {pair}",
+                "disturbance_variance": f"disturbance variance of factor {pair}",  # below a higher-order factor
                 "factor_covariance": f"covariance of factors {pair}",
                 "residual_variance": f"residual variance of {pair}",
                 "residual_covariance": f"residual covariance of {pair}",

@@ -14,7 +14,12 @@ blocks, phi_ab = l_a' R_ab l_b / (l_a'l_a l_b'l_b), which is the population valu
 when R_ab = l_a phi_ab l_b' (a Spearman-style correction for attenuation), shrunk
 towards zero if needed so that they form a positive-definite matrix.  A higher-order
 factor's paths take their signs from the first principal axis of the correlations
-of the factors below it.  Targets for every matrix entry are then mapped to theta by
+of the factors below it.  The variance of a factor below a higher-order factor is
+its disturbance, the part the factor above does not explain: its total variance is
+that disturbance plus what the factor above explains, which the start takes as half
+the total when the disturbance is free and as the rest of the total when it is fixed
+(all of it at 0, the factor then being a multiple of the one above; Bollen 1989,
+ch. 8, for the total variance of a factor, B Phi B' + Psi).  Targets for every matrix entry are then mapped to theta by
 least squares, which respects equality constraints and effects coding.
 """
 
@@ -54,6 +59,7 @@ class StartPlan:
     # the rules of FactorBlock, the marker's position being the lower factor itself
     higher: tuple[tuple[int, tuple[int, ...], tuple[int, int, float]], ...]
     endogenous: np.ndarray  # bool per factor: loads on a higher-order factor
+    disturbance: np.ndarray  # per factor: the fixed value of its disturbance variance (NaN: free, or no disturbance)
     has_factor: np.ndarray  # bool per item: has a loading
     pairs_with_items: np.ndarray | None  # per factor covariance: both factors have items (None: all do)
     loads: tuple[np.ndarray, np.ndarray, np.ndarray]  # (entries, factor, item) of indicator loadings
@@ -76,7 +82,8 @@ def start_plan(table: ParameterTable) -> StartPlan:
     items: dict[int, list[int]] = {f: [] for f in range(m)}
     lower: dict[int, list[int]] = {f: [] for f in range(m)}
     fixed_var: dict[int, float] = {}
-    fixed_load: dict[int, tuple[int, float]] = {}  # factor -> (item or lower factor, fixed loading)
+    # factor -> (item or lower factor, fixed loading), for the loadings on items ("L") and on factors ("B")
+    fixed_load: dict[str, dict[int, tuple[int, float]]] = {"L": {}, "B": {}}
     endogenous = np.zeros(m, dtype=bool)
     recipes: dict[str, list[tuple]] = {k: [] for k in ("L", "B", "var", "cov", "res", "int", "thr")}
     for e, par in enumerate(table.parameters):
@@ -93,8 +100,8 @@ def start_plan(table: ParameterTable) -> StartPlan:
             k = lat_ix[x] if par.matrix == "B" else obs_ix[x]
             if k not in target:  # several groups repeat each entry
                 target.append(k)
-            if not par.free and par.offset != 0.0 and lat_ix[f] not in fixed_load:
-                fixed_load[lat_ix[f]] = (k, par.offset)
+            if not par.free and par.offset != 0.0 and lat_ix[f] not in fixed_load[par.matrix]:
+                fixed_load[par.matrix][lat_ix[f]] = (k, par.offset)
         elif kind == "factor_variance":
             recipes["var"].append((e, lat_ix[par.variables[0]]))
             if not par.free:
@@ -112,16 +119,25 @@ def start_plan(table: ParameterTable) -> StartPlan:
     n_factors = np.zeros(p)
     for ix in items.values():
         n_factors[ix] += 1
-    rules = {}
-    for f, ix in items.items():
-        if not ix:
-            continue
-        if f in fixed_var:
-            rules[f] = (0, 0, fixed_var[f] * (2.0 if endogenous[f] else 1.0))
-        elif f in fixed_load and fixed_load[f][0] in ix:
-            rules[f] = (1, ix.index(fixed_load[f][0]), fixed_load[f][1])
-        else:
-            rules[f] = (2, 0, 1.0)
+    # the variance fixed for a factor below a higher-order factor is its disturbance, not its total variance
+    disturbance = np.array([fixed_var[f] if endogenous[f] and f in fixed_var else np.nan for f in range(m)])
+
+    def rule_of(f: int, matrix: str) -> tuple[int, int, float]:
+        """How the start sets factor f's total variance from its items (``matrix`` "L"; the marker's position
+        among them) or the factors below it ("B"; the marker's position is the lower factor itself): a fixed
+        variance of a factor below no other is its total; otherwise a fixed loading (its own marker); otherwise
+        a fixed disturbance d > 0 (the factor above explaining as much again, a total of 2d); otherwise the mean
+        loading (a disturbance fixed at 0 sets no scale: the factor is then a multiple of the one above)."""
+        if f in fixed_var and not endogenous[f]:
+            return (0, 0, fixed_var[f])
+        if f in fixed_load[matrix]:
+            k, value = fixed_load[matrix][f]
+            return (1, items[f].index(k) if matrix == "L" else k, value)
+        if f in fixed_var and fixed_var[f] > 0.0:
+            return (0, 0, 2.0 * fixed_var[f])
+        return (2, 0, 1.0)
+
+    rules = {f: rule_of(f, "L") for f, ix in items.items() if ix}
     blocks = []
     for n in sorted({len(ix) for ix in items.values() if ix}):
         fs = [f for f, ix in items.items() if len(ix) == n]
@@ -138,13 +154,7 @@ def start_plan(table: ParameterTable) -> StartPlan:
         for g in list(pending):
             if not all(h in known for h in lower[g]):
                 continue
-            if g in fixed_var:
-                rule = (0, 0, fixed_var[g])
-            elif g in fixed_load and fixed_load[g][0] in known:
-                rule = (1, fixed_load[g][0], fixed_load[g][1])
-            else:
-                rule = (2, 0, 1.0)
-            higher.append((g, tuple(lower[g]), rule))
+            higher.append((g, tuple(lower[g]), rule_of(g, "B")))
             known.add(g)
             pending.remove(g)
 
@@ -160,7 +170,7 @@ def start_plan(table: ParameterTable) -> StartPlan:
     has_items = np.array([bool(items[f]) for f in range(m)])
     covariances = columns("cov", 3)
     with_items = has_items[covariances[1]] & has_items[covariances[2]]
-    return StartPlan(tuple(blocks), tuple(higher), endogenous, n_factors > 0, None if with_items.all() else with_items,
+    return StartPlan(tuple(blocks), tuple(higher), endogenous, disturbance, n_factors > 0, None if with_items.all() else with_items,
                      columns("L", 3), columns("B", 3), columns("var", 2), covariances, columns("res", 2),
                      columns("int", 2), columns("thr", 2), solve, np.flatnonzero(~np.isnan(table.start)),
                      bool(np.isfinite(table.lower).any() or np.isfinite(table.upper).any()))
@@ -200,13 +210,14 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     if plan.higher:
         path_sign = np.ones((m, m))
         for g, lower, (rule, position, value) in plan.higher:
+            low = list(lower)
+            explained = _explained(total_var[low], plan.disturbance[low])
             if rule == 0:
                 total_var[g] = value
             elif rule == 1:
-                total_var[g] = 0.5 * total_var[position] / value**2
+                total_var[g] = explained[low.index(position)] / value**2
             else:
-                total_var[g] = 0.5 * total_var[list(lower)].mean()
-            low = list(lower)
+                total_var[g] = explained.mean()
             signs = np.ones(len(low))
             if len(low) > 1:
                 C = weights[low] @ R @ weights[low].T
@@ -222,11 +233,14 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     target = np.zeros(len(table.parameters))
     e, f, x = plan.loads
     target[e] = std_loading[f, x] * sd[x] / np.sqrt(total_var[f])
-    e, f, x = plan.paths
-    if len(e):
-        target[e] = path_sign[f, x] * np.sqrt(0.5 * total_var[x] / total_var[f])
     e, f = plan.variances
-    target[e] = total_var[f] * np.where(plan.endogenous[f], 0.5, 1.0)
+    if plan.higher:  # a lower factor's variance parameter is its disturbance: its total less what is explained
+        explained = np.where(plan.endogenous, _explained(total_var, plan.disturbance), 0.0)
+        target[e] = total_var[f] - explained[f]
+        e, f, x = plan.paths
+        target[e] = path_sign[f, x] * np.sqrt(explained[x] / total_var[f])
+    else:
+        target[e] = total_var[f]
     e, a, b = plan.covariances
     if len(e):
         r = np.minimum(np.maximum((weights @ R @ weights.T)[a, b], -0.9), 0.9)
@@ -248,6 +262,13 @@ def starting_values(table: ParameterTable, S: np.ndarray, means: np.ndarray | No
     if len(plan.given):
         theta[plan.given] = table.start[plan.given]
     return np.minimum(np.maximum(theta, table.lower), table.upper) if plan.bounded else theta
+
+
+def _explained(total: np.ndarray, disturbance: np.ndarray) -> np.ndarray:
+    """The start's part of each lower factor's total variance that the factor above explains: half, or what a
+    fixed disturbance variance leaves (all of it when the disturbance is fixed at 0; at least a tenth when the
+    fixed disturbance leaves less)."""
+    return np.where(np.isnan(disturbance), 0.5 * total, np.maximum(total - np.nan_to_num(disturbance), 0.1 * total))
 
 
 def _orientation(loadings: np.ndarray, raw: np.ndarray, rule: np.ndarray, position: np.ndarray,

@@ -146,8 +146,11 @@ def _structure(result, d) -> str:
 
 
 def _parameter(ref: tuple, d) -> str:
-    """A model file's parameter (kind, names, group) in words: 'the loading of x2 on visual'."""
+    """A model file's parameter (kind, names, group) in words: 'the loading of x2 on visual'; the variance of a
+    factor below a higher-order factor is its disturbance variance."""
     kind, names, group = ref
+    if kind == "variance" and names and any(s.factor == names[0] and s.below_higher_order for s in d.scales):
+        kind = "disturbance_variance"
     return parameter_words(kind, tuple(names), group, d.indicators, quoted=True)
 
 

@@ -173,6 +173,10 @@ def _error(text: str) -> ModelError:
         # hostile trial 9: 'fix variance(f) = 0' passed the check and failed at estimation without naming the line
         ("factor f: a, b, c\nfix variance(f) = 0\n", 2, 5, "variance(f) is fixed to 0: a factor without variance "
                                                          "measures nothing"),
+        # starts-s10: a higher-order model's disturbance fixed at 0 without a marker failed at the start values
+        ("factor a: a1, a2, a3\nfactor b: b1, b2, b3\nfactor c: c1, c2, c3\nfactor g: a, b, c\nfix variance(a) = 0\n", 5, 5,
+         "'a' is then a multiple of 'g', which sets no scale for 'a' (a fixed variance takes the place of its marker); "
+         "also fix one of its loadings, such as 'fix loading(a, a1) = 1'"),
         ("factor f: a, b, c\nfix variance(a) = 1\nfix variance(b) = 2\nequal variance(a), variance(b)\n", 4, 7, "fixed to different values"),
         ("factor f: a, b, c\nequal loading(f, b), variance(c)\n", 2, 7, "one kind"),
         ("factor f: a, b, c\ncovary a, b\nuncorrelated a, b\n", 3, 14, "no statement is needed"),

@@ -209,6 +209,9 @@ HS_BASE = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: 
     ("bound variance(x9) >= 0\n", ["The residual variance of x9 was kept at or above 0."]),
     ("scale latent by variance\n", ["The scale of each factor was set by fixing its variance to 1."]),
     ("scale latent by effects\n", ["set by effects coding", "Little, Slegers & Card, 2006"]),
+    # starts-s10: it said "The variance of factor textual was fixed at 0", as if textual had no variance at all
+    ("factor g: visual, textual, speed\nfix variance(textual) = 0\nfix loading(textual, x4) = 1\n",
+     ["The disturbance variance of factor textual was fixed at 0 and the loading of x4 on textual was fixed at 1."]),
     ("factor g: visual, textual, speed\nscale latent by variance\n",
      ["with a higher-order factor (g) explaining visual, textual, and speed,",
       "The scales of visual, textual, and speed were set by fixing their disturbance variances to 1"]),

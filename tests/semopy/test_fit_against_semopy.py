@@ -66,6 +66,21 @@ def test_higher_order_model(hs_data):
     assert ours.fit.chi_square == pytest.approx(85.306, abs=5e-3)
 
 
+def test_higher_order_model_with_a_disturbance_fixed_at_0(hs_data):
+    """The first-order factor a multiple of the general one (the start values divided by this 0 before)."""
+    ours = cfa_tool.fit(THREE_FACTORS + "factor general: visual, textual, speed\nfix variance(textual) = 0\n"
+                        "fix loading(textual, x4) = 1\n", hs_data)
+    model, table = _semopy_fit(
+        "visual =~ x1 + x2 + x3\ntextual =~ x4 + x5 + x6\nspeed =~ x7 + x8 + x9\ngeneral =~ visual + textual + speed\n"
+        "textual ~~ 0*textual", hs_data,
+    )
+    assert ours.admissible
+    _compare(_ours_lookup(ours), _semopy_lookup(table))
+    import semopy
+
+    assert ours.fit.chi_square == pytest.approx(semopy.calc_stats(model).T["Value"]["chi2"], rel=1e-4)
+
+
 # ---------------------------------------------------------------- scales with reverse-keyed markers (issue 21)
 
 LONG_RUN = int(os.environ.get("CFA_CONVERGENCE_CASES", "0"))
