@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import ModelError, OptionError, character_names
+from cfa_tool.options import Option
 from cfa_tool.language.spec import Spec
 from cfa_tool.data.odd_values import code_like
 from cfa_tool.input_files import base_name
@@ -80,9 +81,10 @@ def check_codes_off_scales(spec: Spec, missing_codes: tuple[float, ...]) -> None
         on_scale = [c for c in missing_codes if keying.minimum <= c <= keying.maximum and float(c).is_integer()]
         if on_scale:
             raise OptionError(
-                f"--missing-codes {on_scale[0]:g} is an answer of the scale {keying.minimum:g} to {keying.maximum:g} "
-                f"declared by the 'reversed' statement on line {keying.items[0].location.line} (every such answer "
-                f"would be read as no answer): leave {on_scale[0]:g} out of --missing-codes, or correct the scale")
+                f"{Option.MISSING_CODES.given(f'{on_scale[0]:g}')} is an answer of the scale {keying.minimum:g} to "
+                f"{keying.maximum:g} declared by the 'reversed' statement on line {keying.items[0].location.line} "
+                f"(every such answer would be read as no answer): leave {on_scale[0]:g} out of "
+                f"{Option.MISSING_CODES}, or correct the scale")
 
 
 def _outside(frame, name: str, low: float, high: float):
@@ -155,8 +157,8 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
                 location, spec.source_line(location))
         raise ModelError(
             f"{data_name} holds answers outside the scale {keying.minimum:g} to {keying.maximum:g} declared here: "
-            f"{'; '.join(shown)}{more}; if they are typing errors or codes for no answer, give --missing-codes "
-            f"{codes} (or correct them in a copy of the file)"
+            f"{'; '.join(shown)}{more}; if they are typing errors or codes for no answer, give "
+            f"{Option.MISSING_CODES.given(codes)} (or correct them in a copy of the file)"
             + ("; if the scale really runs wider, give its lowest and highest answers here" if wider else ""),
             location,
             spec.source_line(location),
@@ -215,14 +217,14 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
                 out.append(f"{data_name}: '{x}' has the answer {v:g} ({listed(column == v)}), outside the scale "
                            f"{low:g} to {high:g} that the 'reversed' statement declares for the items of {factor}; "
                            f"so many of its answers lie outside that it is read as answered on another scale; if "
-                           f"{v:g} is a typing error or means 'no answer', give --missing-codes {v:g}")
+                           f"{v:g} is a typing error or means 'no answer', give {Option.MISSING_CODES.given(f'{v:g}')}")
             continue
         known = {float(k) for k in labels.get(x) or () if isinstance(k, (int, float))}
         if known:
             for v in sorted(set(column[answered].tolist()) - known):
                 out.append(f"{data_name}: '{x}' has the value {v:g} ({listed(column == v)}), which has no value "
                            f"label, while its other values are labelled; if it is a typing error or means 'no "
-                           f"answer', give --missing-codes {v:g} (or correct it in a copy of the file)")
+                           f"answer', give {Option.MISSING_CODES.given(f'{v:g}')} (or correct it in a copy of the file)")
     return out
 
 

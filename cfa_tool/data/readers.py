@@ -26,6 +26,7 @@ from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.moments import column_dtypes, stored_column
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
 from cfa_tool.errors import DataError, printable
+from cfa_tool.options import Option
 from cfa_tool.input_files import check_input_path, input_bytes, utf16_text
 from cfa_tool.numbers import number
 
@@ -69,7 +70,7 @@ class LoadedData:
         others = ", ".join(f"'{printable(s)}'" for s in self.sheets[1:])
         return (f"; its first sheet not hidden, '{printable(self.sheets[0])}', was read, and the workbook also has "
                 f"{others}: "
-                f"name the sheet of the data with --sheet")
+                f"name the sheet of the data with {Option.SHEET}")
 
 
 EXCEL_SUFFIXES = (".xlsx", ".xlsm")
@@ -255,7 +256,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if len(names) > 1:
         notes.append(_sheet_note(path, ws.title, names, hidden, sheet is not None))
     if not isinstance(ws, openpyxl.worksheet.worksheet.Worksheet):
-        raise DataError(f"{where} is a chart, not a table of data; choose a sheet of data with --sheet "
+        raise DataError(f"{where} is a chart, not a table of data; choose a sheet of data with {Option.SHEET} "
                         f"(sheets: {printable(', '.join(names))})")
     if ws.max_row * ws.max_column > MAX_EXCEL_CELLS:
         raise DataError(f"{where}: the sheet's used range is {ws.calculate_dimension()}, far larger than a table of "
