@@ -111,22 +111,23 @@ def of_summary_statistics(result, moments, notes) -> object:
 
 
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-              text_columns: tuple[str, ...] = (), items=None, listed=None) -> LoadedData:
-    """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to)."""
+              text_columns: tuple[str, ...] = (), items=None, listed=None, filters=()) -> LoadedData:
+    """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to;
+    ``filters``: the row filters applied next, which the notes do not suggest again)."""
     missing_codes = missing_codes_option(missing_codes)
     if isinstance(data, pd.DataFrame):
         if sheet is not None:
             raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
                               f"frame; leave the sheet out")
         frame = blank_text_as_missing(data)  # '' and '  ' are no answer, as an empty cell of a file is
-        frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items)  # in the items only
+        frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items, filters)  # in the items only
         return LoadedData(frame, "<data frame>", notes=notes)
     if isinstance(data, (str, Path)):
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items,
-                         listed=listed)
+                         listed=listed, filters=filters)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -149,13 +150,14 @@ def keep_option(keep) -> list[str]:
 
 
 def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: tuple[str, ...] = (),
-                  items=None) -> LoadedData:
+                  items=None, filters=()) -> LoadedData:
     """The data read for the model ``spec``, as every command reads them: a missing-value code on a declared scale
     refused, no-answer words and labels read as missing in ``items`` only (None: the model's items), and the words
-    its 'answers' statements code kept as answers whatever they say."""
+    its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next."""
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
     listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
-    return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed)
+    return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed,
+                     filters)
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
@@ -164,7 +166,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     the model's items), never in a group, id or design column."""
     keep = keep_option(keep)
     spec = load_spec(model)
-    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items)
+    filters = [parse_filter(k) for k in keep]
+    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters)
     frame = loaded.frame
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
     columns = [c if type(c) is str else str(c) for c in labels]
@@ -174,7 +177,6 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     if not all(type(c) is str for c in labels):  # column labels as text (a renamed copy only when needed)
         frame = frame.set_axis(columns, axis=1)
     notes: list[str] = list(loaded.notes)
-    filters = [parse_filter(k) for k in keep]
     cautions = loaded.cautions
     if filters:
         frame, filter_notes = apply_filters(frame, filters, loaded.source, loaded.value_labels)
