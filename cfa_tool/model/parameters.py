@@ -521,18 +521,19 @@ def one_group_only(spec: Spec, what: str) -> None:
 def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, means: bool) -> None:
     refs = [r for r in all_refs(spec) if r.group is not None]
     mean_refs = [r for r in all_refs(spec) if r.kind in ("intercept", "mean")]
+    groups = Option.GROUP_COLUMN.given("COLUMN")  # as the caller gives it: --group-column COLUMN, group='COLUMN'
     if mean_refs and not means:
-        raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only with groups ({Option.GROUP_COLUMN.given('COLUMN')}) "
+        raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only with groups ({groups}) "
                           f"or with missing data ({Option.INCOMPLETE_ROWS.given('full-information')})", mean_refs[0])
     if not multi:
         if refs:
-            raise _fail(spec, f"'in group {refs[0].group}' needs groups: give the group column ({Option.GROUP_COLUMN.given('COLUMN')})", refs[0])
+            raise _fail(spec, f"'in group {refs[0].group}' needs groups: give the group column ({groups})", refs[0])
         if spec.noninvariant:
             raise _fail(spec, "'noninvariant' lets a parameter differ across groups, and this fit has no groups: give "
-                              f"the group column ({Option.GROUP_COLUMN.given('COLUMN')}) or remove the statement", spec.noninvariant[0])
+                              f"the group column ({groups}) or remove the statement", spec.noninvariant[0])
         if spec.invariant:
             raise _fail(spec, f"the model holds {', '.join(equality_words(spec.invariant))} equal across groups, and "
-                              f"this fit has no groups: give the group column ({Option.GROUP_COLUMN.given('COLUMN')}) or remove the "
+                              f"this fit has no groups: give the group column ({groups}) or remove the "
                               f"statement", spec.equalities_location)
         return
     for ref in refs:

@@ -1077,9 +1077,9 @@ def ordinal_estimator_option(method: str | None, ordinal_items, declared_by: str
         return Weighting.DIAGONAL
     method = Weighting.parse(method, "the ordinal estimator")
     if not ordinal_items:
+        declared_by = declared_by or f"an 'ordinal' statement or {Option.ORDINAL}"
         raise OptionError(f"an estimator for ordinal items is chosen, but the model has no ordinal items (declare them "
-                          f"with {declared_by or f'an {chr(39)}ordinal{chr(39)} statement or {Option.ORDINAL}'}), so it "
-                          f"cannot apply")
+                          f"with {declared_by}), so it cannot apply")
     return method
 
 

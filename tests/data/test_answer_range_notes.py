@@ -117,7 +117,7 @@ def test_a_missing_code_on_a_declared_scale_is_refused(answers):
     """--missing-codes 5 with 'reversed a1 on 1 to 5' would read every top answer of a1..a3 as no answer
     (hostile tester, 9th round: 460 answers dropped with a note): refused, naming the code, scale and line; a code
     off the scale (0, 9) is a code of no answer and is read so."""
-    with pytest.raises(OptionError, match="--missing-codes 5 is an answer of the scale 1 to 5 declared by "
+    with pytest.raises(OptionError, match=r"missing_codes=\[5\] is an answer of the scale 1 to 5 declared by "
                                                    "the 'reversed' statement on line 3"):
         cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", answers, missing_codes=[0, 5])
     assert cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", answers, missing_codes=[0, 9]).converged
