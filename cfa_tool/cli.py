@@ -15,6 +15,7 @@ import sys
 import warnings
 
 from cfa_tool.errors import CfaError, ModelError, printable
+from cfa_tool.options import on_command_line
 
 PROG = "cfa-tool"
 
@@ -120,7 +121,7 @@ def _main(argv: list[str] | None) -> int:
         parser.print_help()
         return 2
     try:
-        with warnings.catch_warnings(), np_quiet():
+        with warnings.catch_warnings(), np_quiet(), on_command_line():  # refusals name the flags, not keywords
             # the report says what went wrong in its own words; library warnings would only print before it
             warnings.simplefilter("ignore")
             return _run(args)

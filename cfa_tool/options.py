@@ -7,8 +7,12 @@ points call them, so a value is checked once, wherever it comes from.
 
 from __future__ import annotations
 
+import contextlib
+import contextvars
+import enum
 import math
 import numbers
+from collections.abc import Iterator
 
 from cfa_tool.errors import OptionError, printable
 
@@ -118,6 +122,93 @@ def group_column(value: object) -> str | None:
     if value is None or isinstance(value, str):
         return value
     raise OptionError(f"the group column must be given by its name (text), not {type(value).__name__}")
+
+
+class Interface(enum.Enum):
+    """Where a run was asked for: what a refusal names an option by."""
+
+    PYTHON = "python"
+    COMMAND_LINE = "command line"
+
+
+_INTERFACE: contextvars.ContextVar[Interface] = contextvars.ContextVar("cfa_tool_interface", default=Interface.PYTHON)
+
+
+@contextlib.contextmanager
+def on_command_line() -> Iterator[None]:
+    """Within: the options are named as the command line's flags (the command line runs every command in it);
+    elsewhere as the Python functions' keywords."""
+    token = _INTERFACE.set(Interface.COMMAND_LINE)
+    try:
+        yield
+    finally:
+        _INTERFACE.reset(token)
+
+
+def interface() -> Interface:
+    return _INTERFACE.get()
+
+
+class Option(enum.Enum):
+    """An option that a refusal or a piece of advice names, declared once with its flag on the command line and
+    its keyword in Python (``switch``: the keyword's value a flag without a value stands for, as --robust for
+    ``test='robust'``; ``listed``: the keyword takes a list).  ``str(option)`` and :meth:`given` name it as the
+    caller wrote it (:func:`on_command_line`)."""
+
+    SHEET = ("--sheet", "sheet")
+    MISSING_CODES = ("--missing-codes", "missing_codes", None, True)
+    KEEP = ("--keep", "keep", None, True)
+    GROUP_COLUMN = ("--group-column", "group")
+    REFERENCE_GROUP = ("--reference-group", "reference_group")
+    ID_COLUMN = ("--id", "id_column")
+    ROBUST = ("--robust", "test", "robust")
+    INCOMPLETE_ROWS = ("--incomplete-rows", "missing")
+    STANDARD_ERRORS_FROM = ("--standard-errors-from", "information")
+    ORDINAL = ("--ordinal", "ordinal")
+    WEIGHTS = ("--weights", "weights")
+    CLUSTER = ("--cluster", "cluster")
+    STRATA = ("--strata", "strata")
+    CATEGORIES = ("--categories", "categories")
+    POPULATION_FROM = ("--population-from", "population")
+    DECIDE_BY = ("--decide-by", "decide_by")
+    MAX_ITERATIONS = ("--max-iterations", "max_iterations")
+
+    def __init__(self, flag: str, keyword: str, switch: str | None = None, listed: bool = False) -> None:
+        self.flag = flag
+        self.keyword = keyword
+        self.switch = switch
+        self.listed = listed
+
+    def __str__(self) -> str:
+        """The option's name: '--incomplete-rows' / 'missing=...'; a switch with its value: '--robust' /
+        "test='robust'"."""
+        if interface() is Interface.COMMAND_LINE:
+            return self.flag
+        return f"{self.keyword}={self.switch!r}" if self.switch is not None else f"{self.keyword}=..."
+
+    def given(self, value: object) -> str:
+        """The option given ``value`` (several values of a repeatable option: a list) as the caller would write it:
+        '--incomplete-rows listwise' / "missing='listwise'", '--missing-codes 9,99' / 'missing_codes=[9, 99]',
+        '--keep "district = north"' / "keep=['district = north']"."""
+        values = [str(v) for v in value] if isinstance(value, (list, tuple)) else [str(value)]
+        if interface() is Interface.COMMAND_LINE:
+            return " ".join(f"{self.flag} {_quoted(text)}" for text in values)
+        if not self.listed:
+            return f"{self.keyword}={value!r}" if isinstance(value, str) else f"{self.keyword}={value}"
+        if len(values) == 1 and _numbers(values[0]):
+            values = [part.strip() for part in values[0].split(",")]
+        return f"{self.keyword}=[{', '.join(text if _numbers(text) else repr(text) for text in values)}]"
+
+
+def _quoted(text: str) -> str:
+    """A value as typed in a shell: in double quotes when it holds a space."""
+    return f'"{text}"' if any(c.isspace() for c in text) and not text.startswith(('"', "'")) else text
+
+
+def _numbers(text: str) -> bool:
+    from cfa_tool.numbers import number
+
+    return all(number(part) is not None for part in text.split(","))
 
 
 def option_in_both(flag: str, keyword: str) -> str:

@@ -8,6 +8,7 @@ import numpy as np
 from cfa_tool.estimation.optimizer import Outcome
 from cfa_tool.language.names import reference_text, written_name
 from cfa_tool.estimation.strategy import Restart, Search
+from cfa_tool.options import Option
 
 IDENTIFICATION_HINT = ("check that every factor is identified (three or more items with clear loadings, or two items "
                        "and a correlation with another factor)")
@@ -66,7 +67,7 @@ def nonconvergence_message(found: Search, labels: tuple[str, ...], limit: int, l
         advice.append("write 'scale latent by variance'")
     if not advice:
         if outcome is Outcome.ITERATION_LIMIT:
-            advice.append("raise the limit (--max-iterations)")
+            advice.append(f"raise the limit ({Option.MAX_ITERATIONS})")
         advice.append(IDENTIFICATION_HINT)
         advice.append("give start values near the expected solution ('start ...')")
     return "; ".join(parts) + ". What to try: " + _or_list(advice)

@@ -44,14 +44,15 @@ def say(args: argparse.Namespace, text: str) -> None:
     print(printable(text), file=sys.stderr if getattr(args, "_stdout_taken", False) else sys.stdout)
 
 
-def write_reports(args: argparse.Namespace, files: list[tuple[str, object, str]]) -> None:
-    """Write (option, content, message) outputs through the output guard, each with its message."""
+def write_reports(args: argparse.Namespace, files: list[tuple[str, object, str]]) -> list[str]:
+    """Write (option, content, message) outputs through the output guard, an output on standard output last (a
+    reader that stops early, '| head', loses no file); the messages of the files written, for :func:`say` after
+    the report."""
     from cfa_tool.output_files import write_file
 
-    for option, content, message in files:
+    for option, content, _ in sorted(files, key=lambda file: args._targets[file[0]].is_stdout):
         write_file(args._targets[option], content)
-        if not args._targets[option].is_stdout:
-            say(args, message)
+    return [message for option, _, message in files if not args._targets[option].is_stdout]
 
 
 def report_files(args: argparse.Namespace, result, html, markdown, report=None) -> list[tuple[str, object, str]]:
@@ -124,12 +125,28 @@ def table_files(args: argparse.Namespace, report, inputs: list[str | None]) -> d
     return files
 
 
-def write_tables(args: argparse.Namespace, files: dict[str, str], inputs: list[str | None]) -> None:
-    if files:
-        from cfa_tool.output_files import write_table_folder
+def write_tables(args: argparse.Namespace, files: dict[str, str], inputs: list[str | None]) -> list[str]:
+    """Write the --tables files; the message saying so, for :func:`say` after the report."""
+    if not files:
+        return []
+    from cfa_tool.output_files import write_table_folder
 
-        write_table_folder("--tables", args.tables, files, [i for i in inputs if i])
-        say(args, f"Tables written to {args.tables}/ as CSV and LaTeX")
+    write_table_folder("--tables", args.tables, files, [i for i in inputs if i])
+    return [f"Tables written to {args.tables}/ as CSV and LaTeX"]
+
+
+def show(args: argparse.Namespace, report, written: list[str], terminal: bool = True) -> None:
+    """The one place a command prints its report: after every file is written (a reader of standard output that
+    stops early, '| head', loses no file), the report on standard output (``terminal``, unless standard output
+    carries an output: then its problems on standard error), then the files written."""
+    if terminal and not args._stdout_taken:
+        from cfa_tool.reporting.terminal import render_report
+
+        render_report(report, console())
+    else:
+        notice_on_standard_error(report.notice)
+    for line in written:
+        say(args, line)
 
 
 def console():
@@ -151,9 +168,8 @@ def notice_on_standard_error(notice) -> None:
 def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
                 first: list[tuple[str, object, str]] = ()) -> int:
     """Turn ``result`` into its report once, make every output asked for (``first``: files the command makes
-    itself, such as simulated rows), then show the report unless standard output carries an output, and write."""
+    itself, such as simulated rows) and write them, then show the report (:func:`show`)."""
     from cfa_tool.reporting.reports import report_of
-    from cfa_tool.reporting.terminal import render_report
 
     report = report_of(result)
     files = list(first)
@@ -163,12 +179,7 @@ def emit_report(args: argparse.Namespace, result, inputs: list[str | None],
         files.append(("--json", to_json(result, report), f"JSON result written to {args.json}"))
     files += document_files(args, report, getattr(args, "dpi", None))
     tables = table_files(args, report, inputs)
-    if not args._stdout_taken:
-        render_report(report, console())
-    else:
-        notice_on_standard_error(report.notice)
-    write_reports(args, files)
-    write_tables(args, tables, inputs)
+    show(args, report, write_reports(args, files) + write_tables(args, tables, inputs))
     return 0
 
 

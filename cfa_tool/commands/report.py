@@ -5,8 +5,8 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.commands.common import add_report_options, check_files, console, document_files, \
-    notice_on_standard_error, picture_resolution, table_files, write_reports, write_tables
+from cfa_tool.commands.common import add_report_options, check_files, document_files, picture_resolution, show, \
+    table_files, write_reports, write_tables
 
 
 def add_parser(sub) -> None:
@@ -29,7 +29,6 @@ def read_result(path: str) -> object:
 def run(args: argparse.Namespace) -> int:
     from cfa_tool.output_files import shown
     from cfa_tool.reporting.reports import saved_report
-    from cfa_tool.reporting.terminal import render_report
 
     check_files(args, [], [args.result])  # never the result file itself, never a file the run did not create
     report = saved_report(read_result(args.result), shown(args.result))
@@ -46,10 +45,6 @@ def run(args: argparse.Namespace) -> int:
             print(f"cfa-tool: note: {NO_PICTURE}", file=sys.stderr)
     files = document_files(args, report, args.dpi)
     tables = table_files(args, report, [args.result])
-    if not (files or tables or args._stdout_taken):  # its work is the files: the terminal view only when none is asked for
-        render_report(report, console())
-    else:
-        notice_on_standard_error(report.notice)
-    write_reports(args, files)
-    write_tables(args, tables, [args.result])
+    written = write_reports(args, files) + write_tables(args, tables, [args.result])
+    show(args, report, written, terminal=not (files or tables))  # its work is the files: the view only without them
     return 0

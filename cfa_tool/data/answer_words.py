@@ -17,6 +17,7 @@ from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.missing_codes import missing_codes_note
 from cfa_tool.data.non_answers import says_no_answer
 from cfa_tool.errors import DataError, Location, ModelError, OptionError, character_names, printable
+from cfa_tool.options import Option
 from cfa_tool.language.spec import AnswerCoding, AnswerWord, Name, Spec, answer_key
 from cfa_tool.numbers import number as strict_number
 
@@ -115,9 +116,10 @@ def _check_codes_of_answers(coding: AnswerCoding, no_answer: set[float]) -> None
     answers = [a for a in coding.answers if a.code in no_answer and a.word is not None and not says_no_answer(a.word)]
     if answers:
         a = answers[0]
-        raise OptionError(f"--missing-codes {a.code:g} is the code {coding.origin} gives the answer '{printable(a.word)}'; "
-                          f"a code of no answer cannot also stand for an answer (every '{printable(a.word)}' would be "
-                          f"read as no answer): leave {a.code:g} out of --missing-codes")
+        raise OptionError(f"{Option.MISSING_CODES.given(f'{a.code:g}')} is the code {coding.origin} gives the answer "
+                          f"'{printable(a.word)}'; a code of no answer cannot also stand for an answer (every "
+                          f"'{printable(a.word)}' would be read as no answer): leave {a.code:g} out of "
+                          f"{Option.MISSING_CODES}")
 
 
 def _first_row(column: pd.Series, value: object, rows: np.ndarray) -> int:
@@ -136,8 +138,8 @@ def _cell_error(source: str, item: str, column: pd.Series, value: object, wrong:
                          f"add it to the statement with its code, or correct the cell (leave it empty for no answer)")
     if wrong == "number":
         number = float(strict_number(value.strip()) if isinstance(value, str) else value)
-        remedy = ("a row of means or totals below the answers? remove it, or leave it out with --keep" if
-                  number != round(number) else "check the file, or mark a code for no answer with --missing-codes"
+        remedy = (f"a row of means or totals below the answers? remove it, or leave it out with {Option.KEEP}" if
+                  number != round(number) else f"check the file, or mark a code for no answer with {Option.MISSING_CODES}"
                   + ("" if coding.carried_from else ", or list the number in the statement with its code"))
         return DataError(f"{where}: holds the number {_shown(value)} among answers recorded as words, and {line} does "
                          f"not list it (a column of words and numbers is often a bad export); {remedy}")

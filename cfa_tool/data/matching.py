@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import ModelError, OptionError, character_names
+from cfa_tool.options import Option
 from cfa_tool.language.spec import Spec
 from cfa_tool.data.odd_values import code_like
 from cfa_tool.input_files import base_name
@@ -80,9 +81,10 @@ def check_codes_off_scales(spec: Spec, missing_codes: tuple[float, ...]) -> None
         on_scale = [c for c in missing_codes if keying.minimum <= c <= keying.maximum and float(c).is_integer()]
         if on_scale:
             raise OptionError(
-                f"--missing-codes {on_scale[0]:g} is an answer of the scale {keying.minimum:g} to {keying.maximum:g} "
-                f"declared by the 'reversed' statement on line {keying.items[0].location.line} (every such answer "
-                f"would be read as no answer): leave {on_scale[0]:g} out of --missing-codes, or correct the scale")
+                f"{Option.MISSING_CODES.given(f'{on_scale[0]:g}')} is an answer of the scale {keying.minimum:g} to "
+                f"{keying.maximum:g} declared by the 'reversed' statement on line {keying.items[0].location.line} "
+                f"(every such answer would be read as no answer): leave {on_scale[0]:g} out of "
+                f"{Option.MISSING_CODES}, or correct the scale")
 
 
 def _outside(frame, name: str, low: float, high: float):
@@ -155,8 +157,8 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
                 location, spec.source_line(location))
         raise ModelError(
             f"{data_name} holds answers outside the scale {keying.minimum:g} to {keying.maximum:g} declared here: "
-            f"{'; '.join(shown)}{more}; if they are typing errors or codes for no answer, give --missing-codes "
-            f"{codes} (or correct them in a copy of the file)"
+            f"{'; '.join(shown)}{more}; if they are typing errors or codes for no answer, give "
+            f"{Option.MISSING_CODES.given(codes)} (or correct them in a copy of the file)"
             + ("; if the scale really runs wider, give its lowest and highest answers here" if wider else ""),
             location,
             spec.source_line(location),

@@ -31,13 +31,14 @@ def missing_codes_note(source: str | Path, codes, read_as_none: list[tuple[str, 
             f"with --missing-codes ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})")
 
 
-def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: Collection[str] | None = None
-                        ) -> tuple[pd.DataFrame, tuple[str, ...]]:
+def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: Collection[str] | None = None,
+                        filters: Collection = ()) -> tuple[pd.DataFrame, tuple[str, ...]]:
     """``frame`` (of the data file ``source``) with the cells of numbers holding one of ``codes`` (--missing-codes)
     read as no answer in the item columns ``items`` (every column when None: no model yet), and the notes saying
     so: how many cells of which columns (:func:`missing_codes_note`), and the other columns that hold a code and
     keep it (:func:`kept_codes_note`): a group, cluster or weight column's 9 is the value 'Grade 9' more often than
-    a code of no answer (new-user trial 9: --missing-codes 9 emptied grade 9 and its rows left the analysis)."""
+    a code of no answer (new-user trial 9: --missing-codes 9 emptied grade 9 and its rows left the analysis).
+    ``filters``: the row filters given (data.filters.RowFilter), which the note's advice does not suggest again."""
     read_as_none: list[tuple[str, int]] = []
     kept: list[tuple[str, float, int]] = []
     if not codes:
@@ -58,15 +59,29 @@ def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: C
                 cells = int((frame[column] == code).sum())
                 if cells:
                     kept.append((column, code, cells))
-    return frame, (missing_codes_note(source, codes, read_as_none),) + ((kept_codes_note(source, kept),) if kept else ())
+    return frame, (missing_codes_note(source, codes, read_as_none),) + (
+        (kept_codes_note(source, kept, filters),) if kept else ())
 
 
-def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int]]) -> str:
-    """The note on codes given with --missing-codes that columns other than the items hold and keep as values."""
+#: the test of each operator of a row filter, as data.filters applies it to numbers
+_KEEPS = {"=": lambda a, b: a == b, "!=": lambda a, b: a != b, "<": lambda a, b: a < b, "<=": lambda a, b: a <= b,
+          ">": lambda a, b: a > b, ">=": lambda a, b: a >= b}
+
+
+def _left_out(column: str, code: float, filters: Collection) -> bool:
+    """Whether a row filter given (``filters``) already leaves out the rows whose ``column`` holds ``code``."""
+    return any(str(f.column) == str(column) and isinstance(f.value, (int, float)) and f.operator in _KEEPS
+               and not _KEEPS[f.operator](code, f.value) for f in filters)
+
+
+def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int]], filters: Collection = ()) -> str:
+    """The note on codes given with --missing-codes that columns other than the items hold and keep as values, with
+    a row filter that would leave those rows out when none given (``filters``) does already."""
     shown = "; ".join(f"'{printable(str(column))}' holds {code:g} in {cells} {'row' if cells == 1 else 'rows'}"
                       for column, code, cells in kept[:NAMED_COLUMNS])
     more = f" and {len(kept) - NAMED_COLUMNS} more" if len(kept) > NAMED_COLUMNS else ""
-    column, code, _ = kept[0]
+    open_ = [(column, code) for column, code, _ in kept if not _left_out(column, code, filters)]
+    advice = (f"; to leave those rows out, give a row filter such as "
+              f"--keep \"{printable(str(open_[0][0]))} != {open_[0][1]:g}\"" if open_ else "")
     return (f"{base_name(source)}: --missing-codes applies to the model's items; other columns keep such a value as "
-            f"it is ({shown}{more}); to leave those rows out, give a row filter such as "
-            f"--keep \"{printable(str(column))} != {code:g}\"")
+            f"it is ({shown}{more}){advice}")

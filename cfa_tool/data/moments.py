@@ -14,6 +14,7 @@ import pandas as pd
 
 from cfa_tool.data.answer_scales import MOST_WORDS_SHOWN, distinct_words, suggested_statement
 from cfa_tool.errors import DataError, EstimationError, printable
+from cfa_tool.options import Option
 from cfa_tool.method import MissingData
 from cfa_tool.numbers import number as strict_number
 from cfa_tool.numerics.linalg import cholesky_log_det
@@ -253,7 +254,7 @@ def _checked_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                             f"variables (every cell of those rows is empty); keep other rows")
         if len(empty) == len(names) and len(names) > 1:
             raise DataError(f"{source}: no row answers any of the model's {len(names)} variables (every cell is empty); "
-                            f"check the data file, or leave these rows out (--keep)")
+                            f"check the data file, or leave these rows out ({Option.KEEP})")
         if len(empty):
             listed = ", ".join(f"'{printable(names[j])}'" for j in empty[:5]) + (
                 f" and {len(empty) - 5} more" if len(empty) > 5 else "")
@@ -424,7 +425,7 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
                         f"given") from None
     except EstimationError as error:
         complete = int(observed.all(axis=1).sum())
-        remedy = ("leave this group out with a row filter (--keep), join it with another group by recoding the group "
+        remedy = (f"leave this group out with a row filter ({Option.KEEP}), join it with another group by recoding the group "
                   "column, or analyse fewer items" if group is not None
                   else "analyse fewer items, or gather rows that answer more of them")
         raise EstimationError(f"{source}: {error}; {complete} of its {n} rows answer all {p} items. What to try: "

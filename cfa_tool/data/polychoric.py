@@ -41,6 +41,7 @@ from cfa_tool.data.moments import numeric_columns, row_numbers
 from cfa_tool.data.odd_values import code_like
 from cfa_tool.data.sample_design import DesignColumns, RowDesign, row_design
 from cfa_tool.errors import DataError, RowDataError, printable
+from cfa_tool.options import Option
 from cfa_tool.method import WeightKind
 from cfa_tool.numerics.bivariate import BIG, bivariate_cdf, bivariate_pdf
 
@@ -458,7 +459,7 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
                            f"the next one in a copy of the data, or leave the item out)" if rare else
                            "some items may be near duplicates or some categories nearly empty")
                         + ("; with missing answers, correlations from different rows need not fit together "
-                           "(--incomplete-rows listwise uses the complete rows only)" if gaps else ""))
+                           f"({Option.INCOMPLETE_ROWS.given('listwise')} uses the complete rows only)" if gaps else ""))
     n_obs = int(round(total)) if design is not None and design.kind is WeightKind.FREQUENCY else n
     return OrdinalMoments(tuple(names), n_obs, len(frame), len(frame) - n, source, tuple(categories), tuple(thresholds),
                           R, gamma, codes, means, sds, frozenset(continuous), joint_gamma,
@@ -531,7 +532,8 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
                      if len(seen[name]) and (v < min(seen[name]) or v > max(seen[name])) and code_like(v)})  # a code?
     codes = [f"{v:g}" for v in beyond]
     first = (f"if {' and '.join(codes)} {'is' if len(codes) == 1 else 'are'} not a real answer (a typing "
-             f"error or a code for no answer), give --missing-codes {','.join(codes)}; if real, " if codes else "")
+             f"error or a code for no answer), give {Option.MISSING_CODES.given(','.join(codes))}; if real, "
+             if codes else "")
     recode = " and ".join(f"'{printable(name)}' ({_merged_into(empty, seen[name])})" for name, empty in items.items()
                           if len(seen[name]))
     one_item, one_group = len(items) == 1, len(found) == 1
@@ -549,7 +551,7 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
     return DataError(f"{said}; thresholds cannot be compared across groups with an empty category. The tool does not "
                      f"merge categories: {first}in a copy of the data file, recode {recode} in every group; or drop "
                      f"{'the item' if one_item else 'those items'} from the model, or leave "
-                     f"{'this group' if one_group else 'those groups'} out with a row filter (--keep)")
+                     f"{'this group' if one_group else 'those groups'} out with a row filter ({Option.KEEP})")
 
 
 def _merged_into(empty, seen) -> str:

@@ -26,6 +26,7 @@ from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.moments import column_dtypes, stored_column
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
 from cfa_tool.errors import DataError, printable
+from cfa_tool.options import Option
 from cfa_tool.input_files import check_input_path, input_bytes, utf16_text
 from cfa_tool.numbers import number
 
@@ -69,7 +70,7 @@ class LoadedData:
         others = ", ".join(f"'{printable(s)}'" for s in self.sheets[1:])
         return (f"; its first sheet not hidden, '{printable(self.sheets[0])}', was read, and the workbook also has "
                 f"{others}: "
-                f"name the sheet of the data with --sheet")
+                f"name the sheet of the data with {Option.SHEET}")
 
 
 EXCEL_SUFFIXES = (".xlsx", ".xlsm")
@@ -79,13 +80,14 @@ STATA_SUFFIXES = (".dta",)
 
 def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               text_columns: tuple[str, ...] = (), items: Collection[str] | None = None,
-              listed: dict[str, frozenset[str]] | None = None) -> LoadedData:
+              listed: dict[str, frozenset[str]] | None = None, filters: Collection = ()) -> LoadedData:
     """Any supported file -> LoadedData; ``missing_codes`` are values that mean 'no answer'; ``text_columns``
     (an id column) are read from delimited text as written ('007' stays '007').  ``items``: the model's item
     columns, the only ones whose text cells and value labels that say no answer ('Not applicable', 9 'refused') are
     read as missing (data.non_answers); a group, id, weight or cluster column keeps such a value as it is (a group
     named 'N/A' stays a group).  None (no model yet): every column but ``text_columns``.  ``listed``: each item's
-    words that the model's 'answers' statements code, answers whatever they say."""
+    words that the model's 'answers' statements code, answers whatever they say.  ``filters``: the row filters the
+    caller applies next (data.filters.RowFilter), which the notes do not suggest again."""
     path = Path(path)
     suffix = path.suffix.lower()
     binary = suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES
@@ -119,7 +121,7 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     mine = None if items is None else {str(x) for x in items}
     as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
     frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
-    frame, code_notes = apply_missing_codes(frame, missing_codes, path, mine)  # in the items only
+    frame, code_notes = apply_missing_codes(frame, missing_codes, path, mine, filters)  # in the items only
     frame, labelled = labelled_non_answers(frame, {c: v for c, v in loaded.value_labels.items() if c not in as_written},
                                            tuple(missing_codes))
     if frame is not loaded.frame:
@@ -255,7 +257,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if len(names) > 1:
         notes.append(_sheet_note(path, ws.title, names, hidden, sheet is not None))
     if not isinstance(ws, openpyxl.worksheet.worksheet.Worksheet):
-        raise DataError(f"{where} is a chart, not a table of data; choose a sheet of data with --sheet "
+        raise DataError(f"{where} is a chart, not a table of data; choose a sheet of data with {Option.SHEET} "
                         f"(sheets: {printable(', '.join(names))})")
     if ws.max_row * ws.max_column > MAX_EXCEL_CELLS:
         raise DataError(f"{where}: the sheet's used range is {ws.calculate_dimension()}, far larger than a table of "

@@ -15,6 +15,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.options import Option
 from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.suggest import close_names
 
@@ -334,7 +335,7 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             absent = frame[name].isna().to_numpy()
             if absent.any():
                 raise DataError(f"{source}: column '{printable(name)}', data row {rows[np.argmax(absent)]}: no {what} "
-                                f"given; every row needs one (a row filter, --keep, can leave such rows out)")
+                                f"given; every row needs one (a row filter, {Option.KEEP}, can leave such rows out)")
     if columns.cluster is not None and columns.strata is not None:
         pairs = pd.DataFrame({columns.cluster: _labels(frame[columns.cluster]),
                               columns.strata: _labels(frame[columns.strata])}).drop_duplicates()
@@ -358,7 +359,7 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             raise DataError(f"{source}: group '{printable(single.index[0])}' of '{printable(group)}' has a single "
                             f"cluster of '{printable(columns.cluster)}' (every cluster lies within one group, so the "
                             f"groups are independent samples), and cluster-robust standard errors need at least two in "
-                            f"each; fit without that group (--keep) or without the cluster column")
+                            f"each; fit without that group ({Option.KEEP}) or without the cluster column")
     from cfa_tool.data.labels import label_notes
 
     for part, unit, name in (("cluster", "cluster", columns.cluster), ("strata", "stratum", columns.strata)):
@@ -389,8 +390,8 @@ def refuse_shared_clusters(frame: pd.DataFrame, columns: DesignColumns | None, g
         raise DataError(f"{source}: cluster '{printable(cluster)}' of column '{printable(columns.cluster)}' has rows in "
                         f"more than one group of '{printable(group)}'; groups that share clusters (domains of one "
                         f"sample) are analysed with their clusters by continuous maximum likelihood with complete "
-                        f"rows, not yet by {estimation}: fit each group alone with its clusters (--keep "
-                        f"\"{printable(group)} = ...\"), or group by a column that clusters nest in")
+                        f"rows, not yet by {estimation}: fit each group alone with its clusters "
+                        f"({Option.KEEP.given(f'{printable(group)} = ...')}), or group by a column that clusters nest in")
 
 
 def refuse_lone_strata(design: RowDesign, columns: DesignColumns, source: str, why: str) -> None:
@@ -452,7 +453,7 @@ def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.
     if text.any():
         raise DataError(f"{where} {rows[np.argmax(text)]}: '{printable(str(column.iloc[np.argmax(text)]))[:40]}' "
                         f"is not a number")
-    for bad, what in ((np.isnan(values), "no weight (every row needs one; leave such rows out with --keep)"),
+    for bad, what in ((np.isnan(values), f"no weight (every row needs one; leave such rows out with {Option.KEEP})"),
                       (np.isinf(values), "an infinite weight"), (values < 0, "a negative weight")):
         if bad.any():
             raise DataError(f"{where} {rows[np.argmax(bad)]}: {what}")

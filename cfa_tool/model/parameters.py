@@ -34,6 +34,7 @@ import numpy as np
 
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import ModelError, OptionError
+from cfa_tool.options import Option
 from cfa_tool.language.checks import all_refs, exogenous_factors
 from cfa_tool.language.names import reference_text, written_name
 from cfa_tool.language.spec import INVARIANCE_CLASSES, ParameterRef, Spec, equality_words
@@ -520,18 +521,19 @@ def one_group_only(spec: Spec, what: str) -> None:
 def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, means: bool) -> None:
     refs = [r for r in all_refs(spec) if r.group is not None]
     mean_refs = [r for r in all_refs(spec) if r.kind in ("intercept", "mean")]
+    groups = Option.GROUP_COLUMN.given("COLUMN")  # as the caller gives it: --group-column COLUMN, group='COLUMN'
     if mean_refs and not means:
-        raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only with groups (--group-column COLUMN) "
-                          f"or with missing data (--incomplete-rows full-information)", mean_refs[0])
+        raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only with groups ({groups}) "
+                          f"or with missing data ({Option.INCOMPLETE_ROWS.given('full-information')})", mean_refs[0])
     if not multi:
         if refs:
-            raise _fail(spec, f"'in group {refs[0].group}' needs groups: give the group column (--group-column COLUMN)", refs[0])
+            raise _fail(spec, f"'in group {refs[0].group}' needs groups: give the group column ({groups})", refs[0])
         if spec.noninvariant:
             raise _fail(spec, "'noninvariant' lets a parameter differ across groups, and this fit has no groups: give "
-                              "the group column (--group-column COLUMN) or remove the statement", spec.noninvariant[0])
+                              f"the group column ({groups}) or remove the statement", spec.noninvariant[0])
         if spec.invariant:
             raise _fail(spec, f"the model holds {', '.join(equality_words(spec.invariant))} equal across groups, and "
-                              f"this fit has no groups: give the group column (--group-column COLUMN) or remove the "
+                              f"this fit has no groups: give the group column ({groups}) or remove the "
                               f"statement", spec.equalities_location)
         return
     for ref in refs:
@@ -545,10 +547,12 @@ def _check_threshold_use(spec: Spec, ordinal: dict[str, int]) -> None:
     for ref in spec.noninvariant:
         if ref.kind == "threshold" and ref.names[0] not in ordinal:
             raise _fail(spec, f"{ref}: '{ref.names[0]}' is not treated as ordinal in a multi-group fit, so it has no "
-                              f"thresholds (declare it with 'ordinal {ref.names[0]}' or --ordinal, and give --group-column)", ref)
+                              f"thresholds (declare it with 'ordinal {ref.names[0]}' or {Option.ORDINAL}, and give "
+                              f"{Option.GROUP_COLUMN})", ref)
     if "thresholds" in spec.invariant and not ordinal:
         raise ModelError("holding thresholds equal across groups applies to ordinal items in a multi-group fit, and this fit has none "
-                         "(declare them with 'ordinal ...' or --ordinal, and give --group-column)", spec.equalities_location,
+                         f"(declare them with 'ordinal ...' or {Option.ORDINAL}, and give {Option.GROUP_COLUMN})",
+                         spec.equalities_location,
                          spec.source_line(spec.equalities_location))
 
 

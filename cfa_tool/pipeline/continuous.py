@@ -39,6 +39,7 @@ from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.numerics.linalg import scaled_factor
 from cfa_tool.numerics.threads import blas_threads_for
+from cfa_tool.options import Option
 from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
 if TYPE_CHECKING:  # the full-information likelihood is imported by the fits that use it
@@ -69,7 +70,7 @@ class FitOptions:
             object.__setattr__(self, "information", Information.parse(self.information, "information"))
         if self.information is not None and self.test is not FitTest.NORMAL:
             raise OptionError(f"with a robust test the standard errors are robust (sandwich) ones, so the information "
-                              f"they come from ('{self.information}', --standard-errors-from) cannot be chosen; remove "
+                              f"they come from ('{self.information}', {Option.STANDARD_ERRORS_FROM}) cannot be chosen; remove "
                               f"that option")
         if self.missing is not None:
             object.__setattr__(self, "missing", MissingData.parse(self.missing, "missing"))
@@ -87,11 +88,11 @@ class FitOptions:
                            check.whole_number("the iteration limit", self.max_iterations, 1, check.MAX_ITERATIONS))
         if self.missing is MissingData.FULL_INFORMATION and self.test is FitTest.SATORRA_BENTLER:
             raise OptionError("the Satorra-Bentler test needs complete rows; the robust test of full-information ML is "
-                              "the Yuan-Bentler one (--robust chooses the test that suits the rows)")
+                              f"the Yuan-Bentler one ({Option.ROBUST} chooses the test that suits the rows)")
         if self.test is FitTest.YUAN_BENTLER and self.missing is MissingData.LISTWISE:
-            raise OptionError("the Yuan-Bentler test goes with full-information ML (--incomplete-rows full-information); "
-                              "the robust test of complete rows is the Satorra-Bentler one (--robust chooses the test "
-                              "that suits the rows)")
+            raise OptionError(f"the Yuan-Bentler test goes with full-information ML "
+                              f"({Option.INCOMPLETE_ROWS.given('full-information')}); the robust test of complete rows "
+                              f"is the Satorra-Bentler one ({Option.ROBUST} chooses the test that suits the rows)")
 
 
 @dataclass(frozen=True)

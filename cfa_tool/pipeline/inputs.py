@@ -27,7 +27,7 @@ from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_desi
                                          refuse_shared_clusters)
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
-from cfa_tool.options import option_in_both
+from cfa_tool.options import Option, option_in_both
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, printable
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
@@ -69,9 +69,10 @@ def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), 
                        id_column: str | None = None) -> None:
     """Options about rows and columns of raw data cannot apply to summary statistics: each is an
     error rather than silently ignored."""
-    given = [name for name, value in (("a sheet (--sheet)", sheet), ("missing-value codes (--missing-codes)", missing_codes),
-                                      ("row filters (--keep)", keep), ("groups (--group-column)", group),
-                                      ("an id column (--id)", id_column)) if value]
+    given = [f"{name} ({option})" for name, option, value in (
+        ("a sheet", Option.SHEET, sheet), ("missing-value codes", Option.MISSING_CODES, missing_codes),
+        ("row filters", Option.KEEP, keep), ("groups", Option.GROUP_COLUMN, group),
+        ("an id column", Option.ID_COLUMN, id_column)) if value]
     if given:
         raise OptionError(f"{source} holds summary statistics, not rows of data, so {given[0]} cannot apply; "
                           f"remove the option or give the raw data")
@@ -110,22 +111,23 @@ def of_summary_statistics(result, moments, notes) -> object:
 
 
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-              text_columns: tuple[str, ...] = (), items=None, listed=None) -> LoadedData:
-    """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to)."""
+              text_columns: tuple[str, ...] = (), items=None, listed=None, filters=()) -> LoadedData:
+    """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to;
+    ``filters``: the row filters applied next, which the notes do not suggest again)."""
     missing_codes = missing_codes_option(missing_codes)
     if isinstance(data, pd.DataFrame):
         if sheet is not None:
             raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
                               f"frame; leave the sheet out")
         frame = blank_text_as_missing(data)  # '' and '  ' are no answer, as an empty cell of a file is
-        frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items)  # in the items only
+        frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items, filters)  # in the items only
         return LoadedData(frame, "<data frame>", notes=notes)
     if isinstance(data, (str, Path)):
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items,
-                         listed=listed)
+                         listed=listed, filters=filters)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -148,13 +150,14 @@ def keep_option(keep) -> list[str]:
 
 
 def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: tuple[str, ...] = (),
-                  items=None) -> LoadedData:
+                  items=None, filters=()) -> LoadedData:
     """The data read for the model ``spec``, as every command reads them: a missing-value code on a declared scale
     refused, no-answer words and labels read as missing in ``items`` only (None: the model's items), and the words
-    its 'answers' statements code kept as answers whatever they say."""
+    its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next."""
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
     listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
-    return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed)
+    return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed,
+                     filters)
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
@@ -163,7 +166,8 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     the model's items), never in a group, id or design column."""
     keep = keep_option(keep)
     spec = load_spec(model)
-    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items)
+    filters = [parse_filter(k) for k in keep]
+    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters)
     frame = loaded.frame
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
     columns = [c if type(c) is str else str(c) for c in labels]
@@ -173,7 +177,6 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     if not all(type(c) is str for c in labels):  # column labels as text (a renamed copy only when needed)
         frame = frame.set_axis(columns, axis=1)
     notes: list[str] = list(loaded.notes)
-    filters = [parse_filter(k) for k in keep]
     cautions = loaded.cautions
     if filters:
         frame, filter_notes = apply_filters(frame, filters, loaded.source, loaded.value_labels)
@@ -262,6 +265,12 @@ def _no_group_notes(no_group: int, group: str) -> list[str]:
             f"{'was' if no_group == 1 else 'were'} left out"]
 
 
+#: the keywords of :func:`fit` besides the fit options (an unknown keyword's near names: :func:`make_options`)
+FIT_KEYWORDS = ("model", "data", "group", "reference_group", "sheet", "missing_codes", "keep", "covariance", "n_obs",
+                "means", "variables", "matrix", "sds", "divisor", "ordinal", "ordinal_estimator", "id_column",
+                "weights", "cluster", "strata", "weight_kind")
+
+
 def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None, *, group: str | None = None,
         reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
         keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
@@ -304,7 +313,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     misbehaved and what to try; a returned result has always converged, so its ``fit`` is always set.
     """
     opt.group_column(group)
-    fit_options = make_options(options)
+    fit_options = make_options(options, FIT_KEYWORDS)
     design = design_columns(weights, cluster, strata, weight_kind)
     if covariance is None:
         given = [name for name, value in (("n_obs", n_obs), ("means", means), ("variables", variables), ("sds", sds))
@@ -332,11 +341,11 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             moments, notes = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
         if fit_options.missing is not None:  # a matrix has no rows, so how rows with gaps are handled cannot apply
-            raise OptionError("summary statistics hold no rows, so the handling of missing answers (--incomplete-rows) cannot "
-                              "apply; remove the option")
+            raise OptionError(f"summary statistics hold no rows, so the handling of missing answers "
+                              f"({Option.INCOMPLETE_ROWS}) cannot apply; remove the option")
         if fit_options.test is not FitTest.NORMAL:
             raise OptionError("summary statistics allow only the normal-theory test: robust tests and standard errors "
-                              "need the rows of answers (--robust cannot apply)")
+                              f"need the rows of answers ({Option.ROBUST} cannot apply)")
         result = converged(fit_moments(spec, moments, replace(fit_options, diagnostics=False)))
         return _described(of_summary_statistics(result, moments, notes), spec, None)
     if data is None:
@@ -371,7 +380,7 @@ def reference_group_applies(results, reference_group: str | None) -> None:
             patterns.setdefault(r.group, set()).add((r.kind, r.variables, r.free, None if r.free else r.estimate))
         if len({frozenset(p) for p in patterns.values()}) > 1:
             return
-    raise OptionError(f"--reference-group {printable(reference_group)} sets nothing in "
+    raise OptionError(f"{Option.REFERENCE_GROUP.given(printable(reference_group))} sets nothing in "
                       f"{'this model' if len(results) == 1 else 'these models'}: every group's factor means are fixed "
                       f"at zero and no other parameter is set by the reference group; it applies when factor means "
                       f"are estimated (intercepts held equal, as 'invariance scalar' or the invariance command hold "
@@ -406,10 +415,10 @@ def _id_can_apply(spec: Spec, ordinal, fit_options: FitOptions) -> None:
         why = "a fit without its diagnostics (diagnostics=False) does not have"
     else:
         return
-    raise OptionError(f"the id column (--id) cannot apply: it names rows in the table of rows that contribute most to "
-                      f"the chi-square, which {why}, and in the caution about rows that gave one answer to every item, "
-                      f"which needs reverse-worded items (a 'reversed' statement); leave it out ('scores' takes --id "
-                      f"to name each scored row)")
+    raise OptionError(f"the id column ({Option.ID_COLUMN}) cannot apply: it names rows in the table of rows that "
+                      f"contribute most to the chi-square, which {why}, and in the caution about rows that gave one "
+                      f"answer to every item, which needs reverse-worded items (a 'reversed' statement); leave it out "
+                      f"(scores take {Option.ID_COLUMN} to name each scored row)")
 
 
 def weighted_out_problems(frame: pd.DataFrame, group: str | None, design: DesignColumns | None) -> tuple:
@@ -859,7 +868,8 @@ def design_test(fit_options, design: DesignColumns):
         return fit_options
     if fit_options.information is not None:
         raise OptionError("with sampling weights, clusters or strata the standard errors are sandwich ones, so the "
-                          "information they come from (--standard-errors-from) cannot be chosen; remove that option")
+                          f"information they come from ({Option.STANDARD_ERRORS_FROM}) cannot be chosen; remove that "
+                          f"option")
     if fit_options.test is FitTest.NORMAL:  # resolved for the rows as --robust is (FitOptions, assess)
         return replace(fit_options, test=FitTest.ROBUST)
     return fit_options
@@ -936,8 +946,8 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
         return replace(fit_options, missing=MissingData.LISTWISE), []
     if fit_options.test is FitTest.SATORRA_BENTLER:
         raise OptionError(f"{gaps} rows have missing answers on model variables, so the fit uses full-information ML, "
-                          f"whose robust test is Yuan-Bentler (--robust chooses it); for the Satorra-Bentler test of the "
-                          f"complete rows only, choose --incomplete-rows listwise")
+                          f"whose robust test is Yuan-Bentler ({Option.ROBUST} chooses it); for the Satorra-Bentler test "
+                          f"of the complete rows only, choose {Option.INCOMPLETE_ROWS.given('listwise')}")
     note = (f"{gaps} of {rows} rows miss some answers on model variables; every answer is used by "
             f"full-information ML (the default when answers are missing; a fit of the complete rows only "
             f"(--incomplete-rows listwise) would leave those rows out)" + ("; the robust test with full-information ML is the Yuan-Bentler one" if robust else ""))
@@ -1050,10 +1060,10 @@ def check_ordinal_options(fit_options) -> bool:
     present rows, the default) rather than left out (listwise, when asked)."""
     if fit_options.test is FitTest.ROBUST:
         raise OptionError(f"ordinal items always get robust (sandwich) standard errors and the {ADJUSTED_TEST} test "
-                          "from the least-squares fit, so --robust cannot apply; remove it")
+                          f"from the least-squares fit, so {Option.ROBUST} cannot apply; remove it")
     if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is not FitTest.NORMAL:
-        raise OptionError("ordinal items use every answer through pairwise present rows (or only the complete rows with "
-                          "--incomplete-rows listwise) and their own adjusted test; full-information ML and the "
+        raise OptionError(f"ordinal items use every answer through pairwise present rows (or only the complete rows with "
+                          f"{Option.INCOMPLETE_ROWS.given('listwise')}) and their own adjusted test; full-information ML and the "
                           "Satorra-Bentler and Yuan-Bentler tests are for continuous items")
     if fit_options.information is not None:
         raise OptionError("ordinal items get robust (sandwich) standard errors from the least-squares fit, so an "
@@ -1083,8 +1093,7 @@ def ordinal_groups(spec: Spec, frame: pd.DataFrame, source: str, group: str, ref
     return groups, _no_group_notes(no_group, group) + label_notes(frame, group)
 
 
-def ordinal_estimator_option(method: str | None, ordinal_items,
-                             declared_by: str = "an 'ordinal' statement or --ordinal") -> str:
+def ordinal_estimator_option(method: str | None, ordinal_items, declared_by: str | None = None) -> str:
     """The least-squares estimator for ordinal items (default diagonally weighted); naming one for a model
     without ordinal items is an error, since it could not apply.  ``declared_by``: how the command run declares
     ordinal items (its own options only)."""
@@ -1092,6 +1101,7 @@ def ordinal_estimator_option(method: str | None, ordinal_items,
         return Weighting.DIAGONAL
     method = Weighting.parse(method, "the ordinal estimator")
     if not ordinal_items:
+        declared_by = declared_by or f"an 'ordinal' statement or {Option.ORDINAL}"
         raise OptionError(f"an estimator for ordinal items is chosen, but the model has no ordinal items (declare them "
                           f"with {declared_by}), so it cannot apply")
     return method
@@ -1152,18 +1162,16 @@ KEYWORDS_BY_OTHER_NAMES = {"robust": "a robust test is asked for with test='robu
                                      "test='yuan-bentler')"}
 
 
-def make_options(options: dict) -> FitOptions:
+def make_options(options: dict, own: tuple[str, ...] = ()) -> FitOptions:
     """The fit options of the keywords a public function passed on (``options``); an unknown keyword is an error
-    naming it and the nearest keyword of that function or of the fit options (difflib), or what asks for the same
+    naming it and the nearest keyword of that function (``own``, its keywords as declared beside it, such as
+    :data:`FIT_KEYWORDS`) or of the fit options (difflib), or what asks for the same
     (:data:`KEYWORDS_BY_OTHER_NAMES`)."""
     from dataclasses import fields
-    import inspect
 
     known = [f.name for f in fields(FitOptions)]
     unknown = next((k for k in options if k not in known), None)
     if unknown is not None:
-        caller = inspect.currentframe().f_back.f_code  # the public function's own keywords are near names too
-        own = caller.co_varnames[:caller.co_argcount + caller.co_kwonlyargcount]
         near = close_names(str(unknown), [*own, *known])
         hint = (KEYWORDS_BY_OTHER_NAMES.get(unknown)
                 or (f"did you mean {near[0]}=...?" if near else f"the fit options are {', '.join(known)}"))

@@ -420,7 +420,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     if gaps:
         if bollen_stine is True:
             raise OptionError(f"{BOLLEN_STINE_WITH_GAPS}; leave it out, or bootstrap the complete rows "
-                              f"(--incomplete-rows listwise)")
+                              f"({check.Option.INCOMPLETE_ROWS.given('listwise')})")
         if bollen_stine is None:
             not_computed = BOLLEN_STINE_WITH_GAPS
         bollen_stine = False

@@ -22,7 +22,7 @@ from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import OptionError, estimation_of
-from cfa_tool.options import group_column
+from cfa_tool.options import Option, group_column
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import (FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, fit_moments,
                                           full_information_likelihood, listwise_problem, model_structure,
@@ -98,6 +98,11 @@ class Comparison(Presentable):
         }
 
 
+#: the keywords of :func:`compare` besides the fit options (an unknown keyword's near names)
+COMPARE_KEYWORDS = ("models", "data", "group", "reference_group", "sheet", "missing_codes", "keep", "ordinal",
+                    "ordinal_estimator", "weights", "cluster", "strata", "weight_kind")
+
+
 def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, group: str | None = None,
             reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
             keep: tuple[str, ...] | list[str] = (), ordinal: str | list[str] | None = None,
@@ -121,7 +126,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     models = list(models)
     if len(models) < 2:
         raise OptionError("comparing needs at least two models")
-    fit_options = replace(make_options(options), diagnostics=False)
+    fit_options = replace(make_options(options, COMPARE_KEYWORDS), diagnostics=False)
     design = design_columns(weights, cluster, strata, weight_kind)
     specs = [load_spec(m) for m in models]
     names = _unique_names(specs)
@@ -166,8 +171,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         if ordinal_items:
             if fit_options.missing is MissingData.FULL_INFORMATION or fit_options.test is FitTest.YUAN_BENTLER:
                 raise OptionError("ordinal items are compared on every answer (pairwise present rows, as fit uses them) or "
-                                  "on the complete rows (--incomplete-rows listwise); full-information ML and its "
-                                  "Yuan-Bentler test are for continuous items")
+                                  f"on the complete rows ({Option.INCOMPLETE_ROWS.given('listwise')}); full-information "
+                                  f"ML and its Yuan-Bentler test are for continuous items")
             pairwise = fit_options.missing is not MissingData.LISTWISE
         else:
             fit_options, missing_notes = choose_missing_handling(fit_options, frame, tuple(used), None)

@@ -21,7 +21,7 @@ from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
 from cfa_tool.errors import DataError, EstimationError, OptionError, printable
 from cfa_tool.numerics.plain import csv_cell
-from cfa_tool.options import group_column
+from cfa_tool.options import Option, group_column
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
@@ -253,6 +253,12 @@ class ScoreResult(Presentable):
         return self.summary()
 
 
+#: the keywords of :func:`scores` besides the fit options (an unknown keyword's near names)
+SCORES_KEYWORDS = ("model", "data", "methods", "standard_errors", "id_column", "group", "reference_group", "sheet",
+                   "missing_codes", "keep", "ordinal", "ordinal_estimator", "weights", "cluster", "strata",
+                   "weight_kind")
+
+
 def scores(model, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
            group: str | None = None, reference_group: str | None = None, sheet: str | None = None,
            missing_codes=(), keep=(), ordinal=None, ordinal_estimator: str | None = None, weights: str | None = None,
@@ -284,7 +290,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     chosen = method_option(methods)
     if not isinstance(standard_errors, bool):
         raise OptionError("standard_errors must be True or False")
-    fit_options = api.make_options(options)
+    fit_options = api.make_options(options, SCORES_KEYWORDS)
     spec, loaded, notes = api.read_inputs_with_notes(model, data, sheet, missing_codes, keep,
                                                      (id_column,) if isinstance(id_column, str) else ())
     api.without_exploratory_blocks(spec, "scores", "its factors' scores would be those of the unrotated block")
@@ -372,7 +378,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     extra = duplicate_note(ids, "id column" if id_column is not None else "row names")
     if ids is not None and id_column is None:
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
-                        f"the header); give --id COLUMN to name the rows by another column.")
+                        f"the header); give {Option.ID_COLUMN.given('COLUMN')} to name the rows by another column.")
     own = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal_items)
     unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
     if unweighted:

@@ -229,6 +229,12 @@ class InvarianceResult(Presentable):
         }
 
 
+#: the keywords of :func:`invariance` besides the fit options (an unknown keyword's near names)
+INVARIANCE_KEYWORDS = ("model", "data", "group", "reference_group", "partial", "alpha", "sheet", "missing_codes", "keep",
+                       "ordinal", "ordinal_estimator", "decide_by", "weights", "cluster", "strata", "weight_kind",
+                       "progress")
+
+
 def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
                reference_group: str | None = None, partial: str = "none", alpha: float | None = None,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
@@ -256,10 +262,11 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         raise OptionError(f"partial must be one of {', '.join(PARTIAL_CHOICES)}, not '{partial}'")
     rule = check.choice(DecisionRule, decide_by, "the decision rule")
     if alpha is not None and rule is DecisionRule.FIT_CHANGE:
-        raise OptionError("alpha is the level of the difference tests, which the fit-change rule does not use; give "
-                          "alpha only with --decide-by difference-test or both")
+        raise OptionError(f"alpha is the level of the difference tests, which the fit-change rule does not use; give "
+                          f"alpha only with {check.Option.DECIDE_BY.given('difference-test')} or "
+                          f"{check.Option.DECIDE_BY.given('both')}")
     alpha = check.probability("alpha (the level of the difference tests)", 0.05 if alpha is None else alpha)
-    fit_options = replace(make_options(options), diagnostics=False)
+    fit_options = replace(make_options(options, INVARIANCE_KEYWORDS), diagnostics=False)
     design = design_columns(weights, cluster, strata, weight_kind)
     spec, loaded, read_notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep)
     frame, source = loaded.frame, loaded.source
@@ -283,7 +290,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         if rule is not DecisionRule.DIFFERENCE_TEST:
             raise OptionError("with ordinal items the fit indices of each step come from its own adjusted statistic and "
                               "cannot be compared across steps; judge the steps by the difference tests "
-                              "(--decide-by difference-test)")
+                              f"({check.Option.DECIDE_BY.given('difference-test')})")
         groups, notes = ordinal_groups(spec, frame, source, group, reference_group, ordinal_items, pairwise, design)
         notes = list(read_notes) + list(notes)
         ladder = OrdinalLadder(ordinal_estimator,

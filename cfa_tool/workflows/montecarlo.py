@@ -141,7 +141,8 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
                               f"simulated data set; plan with a smaller sample size")
     population = with_categories(population_from_spec(spec, population), spec, categories, "power-simulation")
     weighting = ordinal_estimator_option(ordinal_estimator, population.ordinal_items,
-                                         "an 'ordinal' statement, --categories or an ordinal fit's --population-from")
+                                         f"an 'ordinal' statement, {check.Option.CATEGORIES} or an ordinal fit's "
+                                         f"{check.Option.POPULATION_FROM}")
     # one size keeps the seeds it always had; several take one stream per size from the same seed
     streams = [np.random.SeedSequence(seed)] if len(sizes) == 1 else np.random.SeedSequence(seed).spawn(len(sizes))
     if population.ordinal_items:
@@ -172,8 +173,8 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
                  f"the values {{}} make the variance of '{population.observed[k]}' {variances[k]:.3g}")
         if population.fitted_from is not None:  # a continuous fit's values are on its items' own scales
             raise OptionError(scale.format(f"of the continuous fit in {population.fitted_from}") + "; give the JSON "
-                              "result of an ordinal fit of these items (fit --ordinal), or leave out --categories for "
-                              "the power of the continuous model")
+                              f"result of an ordinal fit of these items (a fit with {check.Option.ORDINAL}), or leave "
+                              f"out {check.Option.CATEGORIES} for the power of the continuous model")
         raise OptionError(scale.format("given") + "; change the 'start' values")
     table = build_parameter_table(ordinal_spec(spec)[0])
     value_of = {(v["kind"], tuple(v["variables"])): v["value"] for v in population.values()}

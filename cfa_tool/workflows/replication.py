@@ -202,13 +202,16 @@ def _ordinal_moments(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items
     return ordinal_moments(frame, spec.observed_names, source, continuous, pairwise=pairwise)
 
 
-def _ordinal_setup(spec: Spec, ordinal, ordinal_estimator, options: dict) -> tuple[set[str], Weighting | None, bool]:
-    """(ordinal items, their estimator, whether rows with gaps are kept), as ``fit`` reads them."""
+def _ordinal_setup(spec: Spec, ordinal, ordinal_estimator, options: dict,
+                   own: tuple[str, ...]) -> tuple[set[str], Weighting | None, bool]:
+    """(ordinal items, their estimator, whether rows with gaps are kept), as ``fit`` reads them; the fit options
+    checked first (an unknown keyword named with the near ones of the public function's keywords ``own``)."""
     from cfa_tool.pipeline.inputs import check_ordinal_options, ordinal_estimator_option, ordinal_items_of
 
+    fit_options = make_options(options, own)
     items = ordinal_items_of(spec, ordinal)
     method = ordinal_estimator_option(ordinal_estimator, items)
-    pairwise = check_ordinal_options(make_options(options)) if items else False
+    pairwise = check_ordinal_options(fit_options) if items else False
     return items, method if items else None, pairwise
 
 
@@ -266,12 +269,23 @@ def _not_the_same_rows(spec: Spec, first: pd.DataFrame, second: pd.DataFrame, fi
                            f"same rows" if shared == len(a) == len(b) else
                            f"{'every row' if shared == len(small) else f'{shared} of the {len(small)} rows'} of {inside} "
                            f"(on the model's variables) {'is' if shared == len(small) else 'are'} also in the other file")
-                          + "; replication checks the model in new data (or give one file as --data to split it in "
-                            "two random halves)")
+                          + f"; replication checks the model in new data ({_one_file_instead()})")
+
+
+def _one_file_instead() -> str:
+    """The other way to check a model with one file, as the caller asks for it."""
+    return ("or give one file as --data to split it in two random halves"
+            if check.interface() is check.Interface.COMMAND_LINE else "or split one data set in two random halves with split_half")
 
 
 #: the share of one file's (mostly distinct) rows found in the other beyond which the two are not separate samples
 SHARED_ROWS = 0.2
+
+
+#: the keywords of :func:`replicate` and :func:`split_half` besides the fit options (an unknown keyword's near names)
+REPLICATE_KEYWORDS = ("model", "calibration", "validation", "ordinal", "ordinal_estimator", "missing", "sheet",
+                      "missing_codes")
+SPLIT_HALF_KEYWORDS = ("model", "data", "seed", "ordinal", "ordinal_estimator", "missing", "sheet", "missing_codes")
 
 
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
@@ -282,10 +296,12 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     ``sheet`` and ``missing_codes`` apply to both files, as for ``fit``."""
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
-    ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator, options if missing is None else {**options, "missing": missing})
+    ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
+                                                     options if missing is None else {**options, "missing": missing},
+                                                     REPLICATE_KEYWORDS)
     if _same_file(calibration, validation):
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
-                          "new data (or give one file as --data to split it in two random halves)")
+                          f"new data ({_one_file_instead()})")
     read = [load_data_for(spec, calibration, sheet, missing_codes), load_data_for(spec, validation, sheet, missing_codes)]
     for loaded in read:
         check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
@@ -336,7 +352,8 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
-                                                     options if missing is None else {**options, "missing": missing})
+                                                     options if missing is None else {**options, "missing": missing},
+                                                     SPLIT_HALF_KEYWORDS)
     loaded = load_data_for(spec, data, sheet, missing_codes)
     check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
     loaded, notes = _words_coded(spec, loaded, missing_codes)

@@ -475,14 +475,14 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
             lacking = [x for x in declared if x not in coded]
             if lacking:
                 raise OptionError(f"the model declares ordinal items ({', '.join(lacking[:5])}); give the number of "
-                                  f"categories to cut them into (--categories)")
+                                  f"categories to cut them into ({check.Option.CATEGORIES})")
         cut = set(declared) if declared or categories is None else set(population.observed)
         for x in population.observed:
             if x in cut and x in coded:
                 if categories is not None and len(coded[x]) != categories:
-                    raise _coding_error(spec, x, f"--categories {categories} cuts '{printable(x)}' into "
-                                                 f"{categories} categories, and {{origin}} lists {len(coded[x])} "
-                                                 f"codes for it; leave --categories out (the statement gives the "
+                    raise _coding_error(spec, x, f"{check.Option.CATEGORIES.given(categories)} cuts '{printable(x)}' "
+                                                 f"into {categories} categories, and {{origin}} lists {len(coded[x])} "
+                                                 f"codes for it; leave {check.Option.CATEGORIES} out (the statement gives the "
                                                  f"categories) or make them agree")
                 thresholds[x] = equal_thresholds(len(coded[x]))
             elif x in cut:
@@ -494,7 +494,7 @@ def with_categories(population: Population, spec: Spec, categories: int | None,
             raise _coding_error(spec, x, f"{{origin}} records the answers of '{printable(x)}' in {len(codes)} "
                                          f"categories, and {command} simulates continuous answers for the items "
                                          f"the model does not declare ordinal; declare them ordinal (an 'ordinal' "
-                                         f"statement, or --categories {len(codes)}) to simulate answers in the "
+                                         f"statement, or {check.Option.CATEGORIES.given(len(codes))}) to simulate answers in the "
                                          f"statement's categories, or remove the statement for the power of "
                                          f"continuous answers")
         thresholds[x] = equal_thresholds(len(codes))  # simulate writes the statement's words

@@ -44,3 +44,28 @@ def test_the_readme_names_the_commands_that_take_workers_as_the_parsers_do():
     seeded = {name for name, p in commands.items() if "--seed" in p._option_string_actions}
     assert listed == takes == {"bootstrap", "cutoffs", "power-simulation"}
     assert alone == seeded - takes
+
+
+def test_the_readme_data_files_section_names_options_the_fit_takes_and_filters_that_parse():
+    # the data-files paragraph, split into sections with headings: every option it names is an option of 'fit'
+    # (the command the section describes), each value written beside one is one the option takes, and each
+    # --keep example is a row filter that parses
+    import re
+
+    from cfa_tool.cli import build_parser
+    from cfa_tool.data.filters import parse_filter
+    from cfa_tool.resources import resource_dir
+
+    readme = (resource_dir("models").parent / "README.md").read_text(encoding="utf-8")
+    section = readme.split("### Data files\n", 1)[1].split("\n### ", 1)[0]
+    headings = re.findall(r"^#### (.+)$", section, re.M)
+    assert headings[:3] == ["Reading files", "Encodings", "Excel workbooks"] and len(headings) >= 8
+    fit = _commands()["fit"]
+    written = re.findall(r"`(--[a-z-]+)(?: ([^`]+))?`", section)
+    assert {option for option, _ in written} >= {"--sheet", "--keep", "--missing-codes", "--incomplete-rows"}
+    for option, value in written:
+        assert option in fit._option_string_actions, option  # noqa: SLF001 - argparse's own table
+        if value and option != "--sheet":  # NAME: a placeholder
+            args = build_parser("fit").parse_args(["fit", "m.cfa", "--data", "d.csv", f"{option}={value.strip(chr(39))}"])
+            if option == "--keep":
+                assert parse_filter(args.keep[0]).column in ("district", "visit_date")

@@ -31,10 +31,10 @@ def answers():
 
 def test_partners_of_reversed_items_outside_the_declared_scale_are_refused_as_the_named_items_are(answers):
     # one rule for every item the statement's scale covers (new-user trial 7, U12: a note on the partners let the
-    # stray answers become categories); the remedy first is --missing-codes, a wider scale only second
+    # stray answers become categories); the remedy first is missing_codes (--missing-codes), a wider scale only second
     assert refusal(MODEL + "reversed a1 on 1 to 5\n", answers) == (
         "<data frame> holds answers outside the scale 1 to 5 declared here: 'a2' 0 (2 cells: data rows 10, 20); if "
-        "they are typing errors or codes for no answer, give --missing-codes 0 (or correct them in a copy of the "
+        "they are typing errors or codes for no answer, give missing_codes=[0] (or correct them in a copy of the "
         "file); if the scale really runs wider, give its lowest and highest answers here")
     # b is not keyed by the statement: its 9 is not judged by that scale
     fitted = cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", answers, missing_codes=[0])
@@ -117,7 +117,7 @@ def test_a_missing_code_on_a_declared_scale_is_refused(answers):
     """--missing-codes 5 with 'reversed a1 on 1 to 5' would read every top answer of a1..a3 as no answer
     (hostile tester, 9th round: 460 answers dropped with a note): refused, naming the code, scale and line; a code
     off the scale (0, 9) is a code of no answer and is read so."""
-    with pytest.raises(OptionError, match="--missing-codes 5 is an answer of the scale 1 to 5 declared by "
+    with pytest.raises(OptionError, match=r"missing_codes=\[5\] is an answer of the scale 1 to 5 declared by "
                                                    "the 'reversed' statement on line 3"):
         cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", answers, missing_codes=[0, 5])
     assert cfa_tool.fit(MODEL + "reversed a1 on 1 to 5\n", answers, missing_codes=[0, 9]).converged

@@ -358,7 +358,7 @@ def test_replication_reads_the_data_as_fit_does(tmp_path):
     plain = cfa_tool.split_half(PLAIN, tmp_path / "numbers.csv", seed=4)
     for a, b in zip(coded, plain):
         assert a.calibration_result.fit.chi_square == pytest.approx(b.calibration_result.fit.chi_square, rel=1e-10)
-    with pytest.raises(OptionError, match="--missing-codes 5 is an answer of the scale 1 to 5"):
+    with pytest.raises(OptionError, match=r"missing_codes=\[5\] is an answer of the scale 1 to 5"):
         cfa_tool.replicate(PLAIN + "reversed quiet on 1 to 5\n", tmp_path / "numbers.csv", numbers.iloc[:150],
                            missing_codes=[5])
 

@@ -145,17 +145,17 @@ def test_an_item_empty_only_in_the_rows_kept_is_not_called_empty_in_the_file():
     data = _frame(80).assign(site=["east"] * 40 + ["west"] * 40)
     data.loc[:39, "c"] = np.nan
     for how in ({}, {"missing": "listwise"}):
-        with pytest.raises(DataError, match=r"column 'c' has no answers in the 40 rows kept by --keep 'site = east' "
+        with pytest.raises(DataError, match=r"column 'c' has no answers in the 40 rows kept by keep=\['site = east'\] "
                                             r"\(every cell of those rows is empty\)"):
             cfa_tool.fit(MODEL, data, keep=["site = east"], **how)
     with pytest.raises(DataError, match=r"group 'east' of site\): column 'c' has no answers in the 40 rows of this "
                                         r"group"):
         cfa_tool.fit(MODEL, data, group="site")
     coded = data.assign(**{c: np.clip(np.round(data[c]), -2, 2) for c in "abc"})
-    with pytest.raises(DataError, match="0 of the 40 rows kept by --keep 'site = east' answered item 'c', so its "
+    with pytest.raises(DataError, match="0 of the 40 rows kept by keep=\\['site = east'\\] answered item 'c', so its "
                                         "thresholds cannot be estimated"):
         cfa_tool.fit(MODEL, coded, keep=["site = east"], ordinal="all")
-    with pytest.raises(DataError, match=r"none of the 40 rows kept by --keep 'site = east' answers any of the "
+    with pytest.raises(DataError, match=r"none of the 40 rows kept by keep=\['site = east'\] answers any of the "
                                         r"model's 3 variables"):
         cfa_tool.fit(MODEL, data.assign(a=np.nan, b=np.nan), keep=["site = east"])
     # the whole file without answers keeps its own words

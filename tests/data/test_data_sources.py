@@ -132,7 +132,7 @@ def test_workbook_whose_first_sheet_is_a_codebook(tmp_path, hs_items, hs_three):
                                                                                    index=False)
         hs_items.to_excel(writer, sheet_name="Data", index=False)
     with pytest.raises(ModelError, match="its first sheet not hidden, 'Codebook', was read, and the workbook also has 'Data': "
-                                         "name the sheet of the data with --sheet"):
+                                         r"name the sheet of the data with sheet=\.\.\."):
         cfa_tool.fit(THREE_FACTORS, path)
     with pytest.raises(DataError, match="none of its columns holds numbers.*also has 'Data'"):
         cfa_tool.explore(path, replications=5)

@@ -147,11 +147,11 @@ def test_labels_that_differ_only_in_case_are_named_first_and_kept_apart(spaced):
 def test_a_reference_group_that_sets_nothing_is_an_error(spaced):
     """Without equal intercepts every group's factor means are fixed at zero, so a reference group sets nothing
     (hostile trial 9: it was accepted and only reordered the groups); fit and compare refuse it."""
-    with pytest.raises(OptionError, match="--reference-group south sets nothing in this model"):
+    with pytest.raises(OptionError, match="reference_group='south' sets nothing in this model"):
         cfa_tool.fit(MODEL, spaced, group="area", reference_group="south")
     with pytest.raises(OptionError, match="sets nothing in these models"):
         cfa_tool.compare([MODEL, MODEL + "covary y1, y2\n"], spaced, group="area", reference_group="south")
-    with pytest.raises(OptionError, match="--reference-group south sets nothing in this model"):
+    with pytest.raises(OptionError, match="reference_group='south' sets nothing in this model"):
         cfa_tool.scores(MODEL, spaced, group="area", reference_group="south")
     scalar = cfa_tool.fit(MODEL + "invariance scalar\n", spaced, group="area", reference_group="south")
     means = [r for r in scalar.estimates if r.kind == "mean"]

@@ -41,3 +41,20 @@ def test_a_group_column_keeps_a_value_given_as_a_missing_code(answers, tmp_path)
     gaps = answers.assign(a2=answers["a2"].replace(9.0, np.nan))
     reference = cfa_tool.fit(MODEL, gaps, group="grade")
     assert fitted.fit.chi_square == pytest.approx(reference.fit.chi_square, rel=1e-10)
+
+
+@pytest.mark.parametrize("keep, suggested", [
+    ((), True),
+    (("grade != 9",), False),  # the very filter the note would suggest
+    (("grade < 9",), False),  # another filter that leaves those rows out
+    (("grade != 6",), True),  # a filter on the column that keeps the rows holding 9
+])
+def test_the_note_suggests_a_row_filter_only_when_none_given_leaves_those_rows_out(answers, tmp_path, keep, suggested):
+    # a hostile trial: '--missing-codes 9 --keep "grade != 9"' was told to give --keep "grade != 9"
+    path = tmp_path / "grades.csv"
+    answers.drop(columns="b3").to_csv(path, index=False)
+    model = "factor a: a1..a3\nfactor b: b1, b2\n"
+    for data in (path, answers.drop(columns="b3")):
+        notes = " ".join(cfa_tool.fit(model, data, missing_codes=[9], keep=list(keep)).warnings)
+        assert "other columns keep such a value as it is ('grade' holds 9 in 100 rows)" in notes
+        assert ("to leave those rows out, give a row filter such as --keep \"grade != 9\"" in notes) is suggested

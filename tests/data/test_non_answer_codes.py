@@ -156,7 +156,7 @@ def test_a_labelled_code_outside_a_declared_scale_gets_missing_codes_never_a_wid
     pyreadstat.write_dta(data, str(path), variable_value_labels=_labels({7: "other"}))
     assert refusal(MODEL + "reversed c1 on 0 to 3\n", path) == (
         "riders.dta holds answers outside the scale 0 to 3 declared here: 'c3' 7 'other' (2 cells: data rows 11, 12); "
-        "if they are typing errors or codes for no answer, give --missing-codes 7 (or correct them in a copy of the "
+        "if they are typing errors or codes for no answer, give missing_codes=[7] (or correct them in a copy of the "
         "file)")
 
 
@@ -167,7 +167,7 @@ def test_an_answer_outside_a_declared_scale_is_refused_in_every_item_it_covers(a
     data.loc[140, "c1"], data.loc[5, "c3"] = -1, 4
     assert refusal(MODEL + "reversed c2 on 0 to 3\n", data) == (
         "<data frame> holds answers outside the scale 0 to 3 declared here: 'c1' -1 (data row 141); 'c3' 4 (data row "
-        "6); if they are typing errors or codes for no answer, give --missing-codes -1,4 (or correct them in a copy "
+        "6); if they are typing errors or codes for no answer, give missing_codes=[-1, 4] (or correct them in a copy "
         "of the file)")
     assert cfa_tool.check(MODEL + "reversed c2 on 0 to 3\n", data, missing_codes=[-1, 4]).complete == len(data) - 2
 

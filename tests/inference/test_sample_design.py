@@ -426,7 +426,7 @@ def test_a_cluster_across_groups_of_ordinal_items_is_an_error(hs_data):
         cfa_tool.fit(THREE_FACTORS, data, group="school", cluster="unit", ordinal="all")
     assert "not yet by the least-squares fit of ordinal items" in str(raised.value)
     # what to do next (new-user trial: languages crossing neighbourhoods left the user without a way on)
-    assert "fit each group alone with its clusters (--keep \"school = ...\")" in str(raised.value)
+    assert "fit each group alone with its clusters (keep=['school = ...'])" in str(raised.value)
 
 
 @pytest.mark.parametrize("column, values, kind, words", [

@@ -162,7 +162,7 @@ def test_a_number_of_categories_other_than_the_statements_is_an_error_naming_it(
     from cfa_tool.errors import ModelError
     from cfa_tool.workflows.simulation import simulate
 
-    with pytest.raises(ModelError, match="--categories 4 cuts 'seat' into 4 categories, and the 'answers' statement on "
+    with pytest.raises(ModelError, match="categories=4 cuts 'seat' into 4 categories, and the 'answers' statement on "
                                          "line 3 lists 5 codes for it") as caught:
         simulate(MODEL, 100, categories=4)
     assert caught.value.location.line == 3
@@ -193,6 +193,6 @@ def test_errors_naming_the_statement_quote_names_with_braces_as_written():
 
     model = ('factor f: "a{1}", a2, a3\n'
              'answers "No" = 0, "Sometimes" = 1, "Often" = 2\n')
-    with pytest.raises(ModelError, match=r"--categories 4 cuts 'a\{1\}' into 4 categories, and the 'answers' "
+    with pytest.raises(ModelError, match=r"categories=4 cuts 'a\{1\}' into 4 categories, and the 'answers' "
                                          r"statement on line 2 lists 3 codes for it"):
         simulate(model, 50, categories=4)

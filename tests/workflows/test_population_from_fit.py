@@ -203,8 +203,8 @@ def test_categories_with_a_continuous_fit_are_named_as_such(tmp_path):
 
     fitted = cfa_tool.fit("factor f: a1..a4\n", pd.DataFrame(data))
     with pytest.raises(OptionError, match=r"the values of the continuous fit in .* make the variance of 'a\d' "
-                                          r"[0-9.]+; give the JSON result of an ordinal fit of these items \(fit "
-                                          r"--ordinal\), or leave out --categories"):
+                                          r"[0-9.]+; give the JSON result of an ordinal fit of these items \(a fit "
+                                          r"with ordinal=\.\.\.\), or leave out categories=\.\.\."):
         monte_carlo_power("factor f: a1..a4\n", 100, replications=2, workers=1, population=fitted, categories=4)
     simulated = simulate("factor f: a1..a4\n", 50, seed=3, categories=4, population=fitted)
     sources = {v["kind"]: v["from"] for v in simulated.population.values()}
