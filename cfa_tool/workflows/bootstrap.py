@@ -544,6 +544,10 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
                                                   "not among them")
     design = design_columns(weights, cluster, strata, weight_kind)
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:
+        if missing is not None:  # the resamples are refitted from pairwise present rows, as the ordinal fit's default
+            raise OptionError(f"the bootstrap of ordinal items keeps the rows with missing answers (each correlation "
+                              f"from the rows that answered both items, in the fit and in every resample), so "
+                              f"{check.Option.INCOMPLETE_ROWS} cannot apply; leave it out")
         if design is not None:
             raise OptionError(f"{ORDINAL_DESIGN}, so the {design.names[0][0]} column '{design.names[0][1]}' cannot "
                               f"apply; leave out the design")

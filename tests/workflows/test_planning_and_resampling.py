@@ -418,3 +418,25 @@ def test_sample_sizes_are_tabled_from_the_smallest_whatever_the_order_typed():
     assert options.sample_sizes([300, 100]) == (100, 300)
     with pytest.raises(OptionError, match="the sample size 50 is given twice"):
         options.sample_sizes("200,50,50")
+
+
+def test_the_ordinal_bootstrap_refuses_a_way_of_handling_gaps_it_would_not_use(tmp_path, capsys):
+    """The ordinal bootstrap fits and refits from pairwise present rows; a choice of how rows with gaps are handled
+    was silently ignored: an error naming the option as the caller wrote it."""
+    import cfa_tool
+    from cfa_tool.cli import main
+    from cfa_tool.errors import OptionError
+    from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+    data = holzinger_swineford()
+    ordinal = data.copy()
+    for x in [f"x{i}" for i in range(1, 10)]:
+        ordinal[x] = np.digitize(data[x], np.quantile(data[x], [0.25, 0.5, 0.75]))
+    ordinal.loc[[3, 7], "x2"] = np.nan
+    with pytest.raises(OptionError, match=r"so missing=\.\.\. cannot apply"):
+        cfa_tool.bootstrap(THREE_FACTORS, ordinal, ordinal="all", missing="listwise", replications=10)
+    ordinal.to_csv(tmp_path / "o.csv", index=False)
+    (tmp_path / "m.cfa").write_text(THREE_FACTORS)
+    assert main(["bootstrap", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "o.csv"), "--ordinal", "all",
+                 "--incomplete-rows", "listwise", "--replications", "10"]) == 2
+    assert "so --incomplete-rows cannot apply" in capsys.readouterr().err
