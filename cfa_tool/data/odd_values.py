@@ -90,7 +90,7 @@ class OddValues:
     def kept_words(self) -> str:
         """The finding in the words of a methods section, for a run that analysed the values as the file holds them:
         'the value -99 in x2 and x5 (7 answers), far outside the other answers (1 to 5): perhaps a missing-value code',
-        'data row 302, whose values equal the means of the other rows' answers in every item column it answers (9):
+        'row 302, whose values equal the means of the other rows' answers in every item column it answers (9):
         perhaps a means row'."""
         low, high = self.others
         if self.kind is OddKind.MISSING_CODE:
@@ -98,18 +98,18 @@ class OddValues:
                     f"({self.answers} answer{'s' if self.answers != 1 else ''}), far outside the other answers "
                     f"({_number(low)} to {_number(high)}): perhaps a missing-value code")
         if self.kind is OddKind.FAR_BEYOND:
-            return (f"data row {self.rows[0]}, with values far beyond every other row's answers ({_number(low)} to "
+            return (f"row {self.rows[0]}, with values far beyond every other row's answers ({_number(low)} to "
                     f"{_number(high)}) in {len(self.columns)} item column{'s' if len(self.columns) != 1 else ''}: "
                     f"perhaps a totals row or a typing error")
         which = "sums" if self.kind is OddKind.SUMS_ROW else "means"
-        return (f"data row {self.rows[0]}, whose values equal the {which} of the other rows' answers in every item "
+        return (f"row {self.rows[0]}, whose values equal the {which} of the other rows' answers in every item "
                 f"column it answers ({len(self.columns)}): perhaps a {'totals' if which == 'sums' else 'means'} row")
 
     def advice(self) -> str:
         if self.kind is OddKind.MISSING_CODE:
             return (f"If {_number(self.values[0])} means 'no answer', give --missing-codes {_number(self.values[0])} "
                     f"(or correct those answers in the file).")
-        return (f"Delete data row {self.rows[0]} from the file (or leave it out with a --keep filter) if it holds no "
+        return (f"Delete row {self.rows[0]} from the file (or leave it out with a --keep filter) if it holds no "
                 f"one's answers; otherwise check those answers.")
 
     def to_dict(self) -> dict:

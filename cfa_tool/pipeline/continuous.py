@@ -218,11 +218,12 @@ def listwise_line(dropped: int, read: int, analysed: int, where: str = "",
 def rows_left_out(groups, missing: MissingData | None,
                   instead: str = FULL_INFORMATION_INSTEAD) -> tuple[list[str], list[str]]:
     """(cautions, notes) on the rows a fit left out, from ``groups``: (label or None, rows left out, rows read,
-    rows analysed) of each group; listwise deletion by :func:`listwise_line`, otherwise (full-information ML,
-    pairwise present rows) the rows that answered none of the model variables, in a note."""
+    rows analysed[, the row numbers of the rows that answer nothing]) of each group; listwise deletion by
+    :func:`listwise_line`, otherwise (full-information ML, pairwise present rows) the rows that answered none of
+    the model variables, in a note naming the first of them."""
     cautions: list[str] = []
     notes: list[str] = []
-    for label, dropped, read, analysed in groups:
+    for label, dropped, read, analysed, *numbers in groups:
         if not dropped:
             continue
         where = f" in group '{label}'" if label is not None else ""
@@ -230,7 +231,11 @@ def rows_left_out(groups, missing: MissingData | None,
             caution, line = listwise_line(dropped, read, analysed, where, instead)
             (cautions if caution else notes).append(line)
         else:
-            notes.append(f"{dropped} of {read} rows{where} answered none of the model variables and were left out")
+            rows = numbers[0] if numbers and numbers[0] is not None and len(numbers[0]) == dropped else ()
+            named = (f" ({'row' if dropped == 1 else 'rows'} {', '.join(str(int(r)) for r in rows[:5])}"
+                     + (f" and {dropped - 5} more" if dropped > 5 else "") + ")") if len(rows) else ""
+            notes.append(f"{dropped} of {read} {'row' if read == 1 else 'rows'}{where} answered none of the model "
+                         f"variables and {'was' if dropped == 1 else 'were'} left out{named}")
     return cautions, notes
 
 
@@ -252,7 +257,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         standardized[sel], factors_standardized[sel] = standardize_entries(mats[g], codes, rows, cols, values[sel],
                                                                            layout)
 
-    cautions, notes = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs) for label, m in groups],
+    cautions, notes = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs, m.unanswered_rows)
+                                     for label, m in groups],
                                     options.missing)
     warnings: list[str] = cautions + notes
     fit = None

@@ -21,7 +21,7 @@ from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
 from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
-from cfa_tool.data.readers import HiddenRows, LoadedData, blank_text_as_missing, read_data
+from cfa_tool.data.readers import HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows, read_data
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
                                          refuse_shared_clusters)
@@ -118,8 +118,9 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
                               f"frame; leave the sheet out")
         frame = blank_text_as_missing(data)  # '' and '  ' are no answer, as an empty cell of a file is
+        frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
         frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items)  # in the items only
-        return LoadedData(frame, "<data frame>", notes=notes)
+        return LoadedData(frame, "<data frame>", notes=blank + tuple(notes))
     if isinstance(data, (str, Path)):
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
@@ -537,7 +538,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
             return f"{r} ({'; '.join(said)})" if said else str(r)
         shown = [one_row(k) for k in which[:SAME_ANSWER_ROWS_SHOWN]]
         more = len(which) - len(shown)
-        return f"data row{'' if len(which) == 1 else 's'} {', '.join(shown)}" + (f" and {more} more" if more else "")
+        return f"row{'' if len(which) == 1 else 's'} {', '.join(shown)}" + (f" and {more} more" if more else "")
 
     def gave(which: list[int]) -> str:
         answers = sorted({found.answers[k] for k in which})
@@ -902,6 +903,8 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
         return replace(fit_options, missing=MissingData.FULL_INFORMATION), []
     robust = fit_options.test is FitTest.ROBUST
     gap = rows_with_gaps(frame, names, values)
+    if gap.any():  # rows that answer nothing are left out and said apart, as the check counts them
+        gap &= ~(np.isnan(values).all(axis=1) if values is not None else frame[list(names)].isna().all(axis=1).to_numpy())
     rows = len(frame)
     if group is not None and group in frame.columns:
         labelled = frame[group].notna().to_numpy()

@@ -17,6 +17,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
 from cfa_tool.errors import DataError, EstimationError, OptionError, printable
@@ -500,7 +501,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     errors = {meth: np.full((n, m), np.nan) for meth in chosen}
     position = pd.Series(np.arange(n), index=read_frame.index)
     if ordinal:
-        _check_categories(models[0], rows, position.loc[frame.index].to_numpy(), source)
+        _check_categories(models[0], rows, row_numbers(frame), source)
     counts: dict = {}
     for model_g, label in zip(models, labels):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(frame))
@@ -562,8 +563,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
 
 def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str) -> None:
     """Every answer to an ordinal item must be one of the categories the earlier fit estimated thresholds for: an
-    error naming the item, the data row and the value otherwise (``data_rows``: each row's place in the file,
-    from 0)."""
+    error naming the item, the row and the value otherwise (``data_rows``: each row's number in the file,
+    data.moments.row_numbers)."""
     for j, cats in enumerate(model.categories):
         if not cats:
             continue
@@ -572,7 +573,7 @@ def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: st
         if unknown.any():
             k = int(np.flatnonzero(unknown)[0])
             raise DataError(f"{source}: ordinal item '{printable(model.base.items[j])}' has the answer {column[k]:g} in "
-                            f"data row {int(data_rows[k]) + 1}, which is not one of the categories the earlier fit "
+                            f"row {int(data_rows[k])}, which is not one of the categories the earlier fit "
                             f"estimated thresholds for ({', '.join(f'{v:g}' for v in cats)}); recode it or leave it out")
 
 

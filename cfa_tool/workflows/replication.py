@@ -225,7 +225,7 @@ def _same_categories(calibration, validation, frame: pd.DataFrame) -> None:
         first = int(row_numbers(frame)[np.argmax(where)])
         raise DataError(f"{validation.source}: ordinal item '{printable(name)}' has the answer"
                         f"{'s' if len(new) > 1 else ''} {', '.join(f'{c:g}' for c in new)} ({int(where.sum())} rows, the "
-                        f"first in data row {first}), which the calibration sample {calibration.source} never had (its "
+                        f"first in row {first}), which the calibration sample {calibration.source} never had (its "
                         f"categories: {', '.join(f'{c:g}' for c in seen)}); the two samples' answer scales differ, so "
                         f"the calibration estimates cannot be carried over: recode the answers alike in both files or "
                         f"leave those rows out")
