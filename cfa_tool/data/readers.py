@@ -123,7 +123,7 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = LoadedData(read_table(path, notes, names, text_columns, items, names_row, reading), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None,
                             reading=reading[0] if reading else None)
-        if loaded.reading is not None:
+        if loaded.reading is not None and not loaded.reading.plain():  # said when it is not plain UTF-8 with commas
             loaded = replace(loaded, notes=(f"{path}: {loaded.reading.words()}",) + loaded.notes)
     loaded = _composed_names(loaded)
     if suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES:  # delimited text: read_table read them so
@@ -145,6 +145,20 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     if code_notes:
         loaded = replace(loaded, notes=loaded.notes + code_notes)
     return loaded
+
+
+def sheet_of_each(sources, sheet: str | None) -> tuple[str | None, ...]:
+    """The sheet to read in each of several data sources (``sheet``: the one --sheet names): the workbooks among
+    them, a CSV file or a data frame beside a workbook read as it is; an error when none is a workbook (a sheet that
+    cannot apply)."""
+    workbook = [isinstance(s, (str, Path)) and Path(s).suffix.lower() in EXCEL_SUFFIXES for s in sources]
+    if sheet is None:
+        return tuple(None for _ in sources)
+    if not any(workbook):
+        named = " and ".join(f"'{printable(str(s))}'" if isinstance(s, (str, Path)) else "a data frame" for s in sources)
+        raise DataError(f"none of {named} is an Excel workbook, so a sheet ('{printable(str(sheet))}') cannot be "
+                        f"chosen; leave --sheet out")
+    return tuple(sheet if w else None for w in workbook)
 
 
 def blank_text_as_missing(frame: pd.DataFrame, keep_text: tuple[str, ...] = (), markers: tuple[str, ...] = (),
@@ -557,6 +571,11 @@ class TextReading:
     separator: str
     decimal: str
     names_line: int  # the line of the column names; rows are named by the line they start on
+
+    def plain(self) -> bool:
+        """UTF-8 text with commas between fields and decimal points, the reading every note would otherwise repeat
+        (the JSON ``data`` block records every reading)."""
+        return self.encoding is TextEncoding.UTF8 and self.separator == "," and self.decimal == "."
 
     def words(self) -> str:
         separator = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "vertical bars ('|')"}[self.separator]

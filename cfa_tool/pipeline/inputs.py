@@ -66,12 +66,13 @@ def load_spec(model: str | os.PathLike | Spec) -> Spec:
 
 
 def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), keep=(), group: str | None = None,
-                       id_column: str | None = None) -> None:
+                       id_column: str | None = None, names_row: int | None = None) -> None:
     """Options about rows and columns of raw data cannot apply to summary statistics: each is an
     error rather than silently ignored."""
     given = [name for name, value in (("a sheet (--sheet)", sheet), ("missing-value codes (--missing-codes)", missing_codes),
                                       ("row filters (--keep)", keep), ("groups (--group-column)", group),
-                                      ("an id column (--id)", id_column)) if value]
+                                      ("an id column (--id)", id_column),
+                                      ("a row of column names (--names-row)", names_row)) if value]
     if given:
         raise OptionError(f"{source} holds summary statistics, not rows of data, so {given[0]} cannot apply; "
                           f"remove the option or give the raw data")
@@ -110,13 +111,16 @@ def of_summary_statistics(result, moments, notes) -> object:
 
 
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-              text_columns: tuple[str, ...] = (), items=None, listed=None) -> LoadedData:
+              text_columns: tuple[str, ...] = (), items=None, listed=None, names_row: int | None = None) -> LoadedData:
     """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to)."""
     missing_codes = missing_codes_option(missing_codes)
     if isinstance(data, pd.DataFrame):
         if sheet is not None:
             raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
                               f"frame; leave the sheet out")
+        if names_row is not None:
+            raise OptionError(f"a row of column names ({printable(repr(names_row))[:20]}) is read from a file, and the "
+                              f"data are a data frame, whose columns have their names; leave it out")
         frame = blank_text_as_missing(data)  # '' and '  ' are no answer, as an empty cell of a file is
         frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
         frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items)  # in the items only
@@ -126,7 +130,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items,
-                         listed=listed)
+                         listed=listed, names_row=names_row)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -149,22 +153,24 @@ def keep_option(keep) -> list[str]:
 
 
 def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: tuple[str, ...] = (),
-                  items=None) -> LoadedData:
+                  items=None, names_row: int | None = None) -> LoadedData:
     """The data read for the model ``spec``, as every command reads them: a missing-value code on a declared scale
     refused, no-answer words and labels read as missing in ``items`` only (None: the model's items), and the words
     its 'answers' statements code kept as answers whatever they say."""
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
     listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
-    return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed)
+    return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed,
+                     names_row)
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
-                           text_columns: tuple[str, ...] = (), items=None) -> tuple[Spec, LoadedData, list[str]]:
+                           text_columns: tuple[str, ...] = (), items=None,
+                           names_row: int | None = None) -> tuple[Spec, LoadedData, list[str]]:
     """The model and the data read for it; no-answer words and labels are read as missing in ``items`` only (None:
     the model's items), never in a group, id or design column."""
     keep = keep_option(keep)
     spec = load_spec(model)
-    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items)
+    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, names_row)
     frame = loaded.frame
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
     columns = [c if type(c) is str else str(c) for c in labels]
@@ -264,8 +270,8 @@ def _no_group_notes(no_group: int, group: str) -> list[str]:
 
 
 def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None, *, group: str | None = None,
-        reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-        keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
+        reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
+        missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
         variables: list[str] | None = None, matrix: str = "covariance", sds=None, divisor: str = "n-1",
         ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, id_column: str | None = None,
         weights: str | None = None, cluster: str | None = None, strata: str | None = None,
@@ -274,7 +280,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
 
     ``model``: model text, a path to a model file, or a parsed Spec.
     ``data``: a DataFrame or a path to a data file (CSV/TSV, .xlsx, .sav/.por, .dta, or a
-    ``.stats`` summary-statistics file); ``sheet`` picks an Excel sheet; ``missing_codes``
+    ``.stats`` summary-statistics file); ``sheet`` picks an Excel sheet; ``names_row``: the row (of a sheet) or
+    line (of a text file) that holds the column names, the rows above it not read; ``missing_codes``
     are values that mean 'no answer'; ``keep`` are row filters such as 'district = north'.
     Instead of data: ``covariance`` (a matrix, or a DataFrame with variable names), ``n_obs``
     and optionally ``means``, ``variables``, ``matrix='correlation'`` with ``sds``, and
@@ -315,7 +322,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             raise OptionError(f"{given[0]} goes with a covariance matrix (covariance=...), and none is given")
     if covariance is not None or summary_source(data):
         refuse_row_options("a covariance matrix" if covariance is not None else f"'{data}'", sheet, missing_codes, keep, group,
-                           id_column)
+                           id_column, names_row)
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         if ordinal or ordinal_estimator is not None:
@@ -343,7 +350,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
-                                                 (id_column,) if isinstance(id_column, str) else ())
+                                                 (id_column,) if isinstance(id_column, str) else (), names_row=names_row)
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:
@@ -1151,8 +1158,8 @@ def make_options(options: dict) -> FitOptions:
 
 
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
-          sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
-          reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
+          sheet: str | None = None, names_row: int | None = None, missing_codes: tuple[float, ...] = (),
+          keep: tuple[str, ...] | list[str] = (), reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
           strata: str | None = None, weight_kind: str | None = None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
     are complete, how many have gaps (kept by default) and each item's
@@ -1165,7 +1172,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     from cfa_tool.model.parameters import build_parameter_table
 
     opt.group_column(group)
-    read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep}
+    read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep, "names_row": names_row}
     design = design_columns(weights, cluster, strata, weight_kind)
     if summary_source(data):
         refuse_row_options(f"'{data}'", group=group, **read_options)

@@ -346,7 +346,7 @@ def _factor_choice(factors) -> int | None:
 
 def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = RotationMethod.QUARTIMIN,
             extraction: str | ExtractionMethod = ExtractionMethod.MAXIMUM_LIKELIHOOD, ordinal=None,
-            split: int | None = None, sheet: str | None = None, missing_codes=(), keep=(), replications: int = 100,
+            split: int | None = None, sheet: str | None = None, names_row: int | None = None, missing_codes=(), keep=(), replications: int = 100,
             seed: int = 0, threshold: float = 0.30, target=None) -> ExploreResult:
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
@@ -370,7 +370,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
         raise OptionError(f"'{data}' holds summary statistics; explore needs the rows of answers (a correlation "
                           f"matrix alone can be explored from Python: 'from cfa_tool.exploration import "
                           f"explore_correlations, from_correlations')")
-    loaded = api.load_data(data, sheet, missing_codes)
+    loaded = api.load_data(data, sheet, missing_codes, names_row=names_row)
     frame, source = loaded.frame, loaded.source
     columns = [str(c) for c in frame.columns]
     if len(set(columns)) != len(columns):

@@ -1,4 +1,4 @@
-"""``--halves-file`` of explore --split and replicate --data: which data rows went to which random half, saved as a
+"""``--halves-file`` of explore --split and replicate --data: which rows went to which random half, saved as a
 CSV (data_row, half) that never replaces a file.  Check values: the halves against the JSON's own row lists and the
 fits' N (explore), the same seed drawing the same halves in both commands (explore then confirm in the other half),
 and the rows of a half refitted from the saved file giving the calibration fit's chi-square (replicate), on the

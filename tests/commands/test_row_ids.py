@@ -41,7 +41,7 @@ def test_fit_names_the_case_diagnostics_by_the_id_column(tmp_path, capsys):
     cases = _cases(tmp_path, capsys, "--id", "id")
     assert cases
     for case in cases:
-        # data row k is the k-th row after the header; its id is that row's value in the 'id' column of the file
+        # row k is the k-th row after the header; its id is that row's value in the 'id' column of the file
         assert case["id"] == str(raw["id"].iloc[case["row"] - 1])
     assert any(case["id"] != str(case["row"]) for case in cases)  # the ids are not the row numbers
 
@@ -107,7 +107,7 @@ def test_rows_with_gaps_are_named_by_the_id_column_under_full_information(tmp_pa
     cases = payload["diagnostics"]["influential_cases"]
     assert cases and any(case["answered"] == 8 for case in cases + payload["diagnostics"]["unusual_cases"])
     for case in cases:
-        assert case["id"] == str(raw["id"].iloc[case["row"] - 1])  # the file's own id of that data row
+        assert case["id"] == str(raw["id"].iloc[case["row"] - 1])  # the file's own id of that row
 
 
 def test_an_id_column_that_could_name_nothing_is_an_error(hs_data):
