@@ -397,8 +397,10 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
     no answer (``loaded.non_answers``), which the methods paragraph names; and the values of its items that look like
     no answers but were analysed as answers (``loaded.odd_values``), and the row filters that chose its rows
-    (:func:`with_row_filters`), which it names too."""
+    (:func:`with_row_filters`), which it names too; and how a text file was read (``loaded.reading``)."""
     result = with_row_filters(result, loaded)
+    if loaded.reading is not None:
+        result = replace(result, data=replace(result.data, reading=loaded.reading))
     codes = missing_codes_option(missing_codes)
     items = set(result.observed)
     marked = tuple(f for f in loaded.non_answers if f.column in items)

@@ -220,6 +220,8 @@ class DataSummary:
     # values of the model's items that look like no answers (data.odd_values.OddValues: a missing-value code, a totals
     # or means row) but were analysed as answers, as the file holds them: the methods paragraph says so
     odd_values: tuple = ()
+    # how a delimited text file was read (data.readers.TextReading: encoding, separator, decimal mark); None otherwise
+    reading: object | None = None
 
     @property
     def pair_range(self) -> tuple[int, int] | None:
@@ -258,6 +260,8 @@ class DataSummary:
             out["not_given"] = [g.value for g in self.not_given]
         if self.missing_codes:
             out["missing_codes"] = list(self.missing_codes)
+        if self.reading is not None:
+            out["reading"] = self.reading.to_dict()
         if self.analysed is not None:
             out["matrix_analysed"] = self.analysed.name.lower()
         if self.without_group:
