@@ -74,7 +74,7 @@ class OddValues:
             where = (f"The item column {printable(self.columns[0])} of {name} holds" if len(self.columns) == 1 else
                      f"{len(self.columns)} item columns of {name} ({_listed(self.columns)}) hold")
             return (f"{where} the value "
-                    f"{value} ({self.answers} answers in {len(self.rows)} {rows}: data {rows} {_listed(self.rows)}), "
+                    f"{value} ({self.answers} answers in {len(self.rows)} {rows}: {rows} {_listed(self.rows)}), "
                     f"far outside the other answers ({_number(low)} to {_number(high)}): a missing-value code read "
                     f"as an answer?")
         shown = ", ".join(f"{printable(c)} {_number(v)}" for c, v in zip(self.columns[:SHOWN], self.values[:SHOWN]))
@@ -84,7 +84,7 @@ class OddValues:
                 OddKind.MEANS_ROW: "the means of the other rows' answers"}[self.kind]
         guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
                  else "a totals or means row of a spreadsheet?")
-        return (f"Data row {self.rows[0]} of {name} holds {what} in {len(self.columns)} item "
+        return (f"Row {self.rows[0]} of {name} holds {what} in {len(self.columns)} item "
                 f"column{'s' if len(self.columns) != 1 else ''} ({shown}{more}): {guess}")
 
     def kept_words(self) -> str:

@@ -179,6 +179,6 @@ def test_a_means_row_that_stops_an_ordinal_fit_is_named_as_one_first():
     with pytest.raises(DataError) as found:
         cfa_tool.fit("factor f: q1..q6\n", frame, ordinal="all")
     message = str(found.value)
-    assert message.startswith("Data row 201 of <data frame> holds the means of the other rows' answers")
+    assert message.startswith("Row 201 of <data frame> holds the means of the other rows' answers")
     assert "leave it out with a --keep filter" in message
     assert message.index("What to try first") < message.index("has the answer") < message.index("in row 201")

@@ -238,13 +238,13 @@ def design_files(tmp_path, hs_data):
 
 
 @pytest.mark.parametrize("options, words", [
-    (["--weights", "negative"], "'negative', row 5: a negative weight"),
-    (["--weights", "gap"], "'gap', row 10: no weight"),
+    (["--weights", "negative"], "'negative', row 6: a negative weight"),
+    (["--weights", "gap"], "'gap', row 11: no weight"),
     (["--weights", "zero"], "every weight in column 'zero' is zero"),
     (["--weights", "x1"], "'x1' is an item in the model and cannot also be the weights column"),
-    (["--weights", "frac", "--weight-kind", "frequency"], "'frac', row 1: frequency weights"),
+    (["--weights", "frac", "--weight-kind", "frequency"], "'frac', row 2: frequency weights"),
     (["--weights", "nowhere"], "there is no weights column 'nowhere'"),
-    (["--cluster", "unit_gap"], "column 'unit_gap', row 3: no cluster given"),
+    (["--cluster", "unit_gap"], "column 'unit_gap', row 4: no cluster given"),
     (["--weight-kind", "frequency"], "no weights column"),
     (["--weights", "w", "--standard-errors-from", "observed"], "information they come from (--standard-errors-from) cannot be chosen"),
     (["--weights", "w", "--cluster", "w"], "the column 'w' is named for two parts of the design"),
