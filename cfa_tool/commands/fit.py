@@ -19,7 +19,7 @@ def add_parser(sub) -> None:
     add_fit_outputs(fit)
     fit.add_argument("--id", metavar="COLUMN", help="column that names each row (never analysed): the case tables and the "
                                                     "caution about rows with one answer throughout show it beside the "
-                                                    "data-row number")
+                                                    "row number")
     O.add_design_options(fit)
 
 

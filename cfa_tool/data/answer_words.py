@@ -121,7 +121,7 @@ def _check_codes_of_answers(coding: AnswerCoding, no_answer: set[float]) -> None
 
 
 def _first_row(column: pd.Series, value: object, rows: np.ndarray) -> int:
-    """The data-row number of the first cell holding ``value``."""
+    """The row number of the first cell holding ``value``."""
     return int(rows[int(np.flatnonzero(column.to_numpy(dtype=object) == value)[0])])
 
 

@@ -292,7 +292,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     the model): thresholds and polychoric correlations, fitted by ``ordinal_estimator``
     ('diagonally-weighted' or 'unweighted' least squares) with robust standard errors.
     ``id_column``: a column that names each row (never analysed; not a model variable or the group
-    column): the case diagnostics name their rows by it beside the data-row number; without it, a
+    column): the case diagnostics name their rows by it beside the row number; without it, a
     row-name column of the file (a first column without a name in the header) does.
     ``weights``: a column of sampling weights (rescaled to sum to the number of rows; pseudo-maximum
     likelihood, Muthén & Satorra 1995, and the weighted full-information likelihood, Asparouhov 2005),
@@ -518,7 +518,7 @@ SAME_ANSWER_ROWS_SHOWN = 10  # rows a caution about same-answer rows names befor
 def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only: bool = False) -> tuple:
     """A caution naming the rows of ``frame`` (the rows analysed) that gave one answer to every item, the items of
     the model's 'reversed' statement included (data.same_answers: careless responding, Johnson 2005; Curran 2016),
-    by data-row number and id (``ids``: data-row number -> id); () when the model declares no reversed items or no
+    by row number and id (``ids``: row number -> id); () when the model declares no reversed items or no
     row did.  The rows stay in the analysis (``scored_only``: rows scored with an earlier fit, which they did not
     enter: they are scored like every row)."""
     if not spec.reversed:
@@ -537,7 +537,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
         return ()
 
     def listed(which: list[int], skipped: bool = False) -> str:
-        """The rows by data-row number (and id); ``skipped``: say of a row that left reverse-worded items out how
+        """The rows by row number (and id); ``skipped``: say of a row that left reverse-worded items out how
         many of them it answered."""
         def one_row(k: int) -> str:
             r = found.rows[k]

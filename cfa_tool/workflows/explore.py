@@ -56,7 +56,7 @@ class SplitHalves:
     """The two random halves of an explore-then-confirm run."""
 
     seed: int
-    exploration_rows: tuple[int, ...]  # data-row numbers (1 = first row after the header)
+    exploration_rows: tuple[int, ...]  # the rows' numbers as the file numbers them (data.moments.row_numbers)
     confirmation_rows: tuple[int, ...]
     confirmation: FitResult | None  # the draft model fitted on the confirmation half (None: no usable draft)
     note: str | None = None  # why there is no confirmation fit
@@ -518,7 +518,7 @@ def _confirm(exploration: Exploration, halves, seed: int, source: str, ordinal_i
         return SplitHalves(seed, first, second, None, "the draft model has no factor with enough items, so there is "
                                                       "nothing to confirm")
     try:
-        fitted = api.fit(exploration.draft.text, confirming)  # its index keeps the data-row numbers
+        fitted = api.fit(exploration.draft.text, confirming)  # its index keeps the row numbers
     except CfaError as exc:
         return SplitHalves(seed, first, second, None, f"the draft model could not be fitted on the confirmation half: "
                                                       f"{exc}")

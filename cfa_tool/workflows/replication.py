@@ -355,7 +355,7 @@ class SplitRows:
     split: int
     in_file: int
     complete_only: bool
-    #: the data-row numbers (1 = the first row after the header) of half A and of half B
+    #: the row numbers (as the file numbers them, data.moments.row_numbers) of half A and of half B
     half_a: tuple[int, ...] = field(default=(), repr=False)
     half_b: tuple[int, ...] = field(default=(), repr=False)
 
@@ -366,7 +366,7 @@ class SplitRows:
 def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal_items, method, missing,
                 pairwise: bool = False, **options) -> tuple[tuple[Replication, Replication], tuple[tuple[int, ...], ...]]:
     """The halves of the rows fit would analyse: with gaps kept (full-information ML, or ordinal items' pairwise
-    rows), every row with an answer; else the complete rows.  Also the data-row numbers of halves A and B."""
+    rows), every row with an answer; else the complete rows.  Also the row numbers of halves A and B."""
     handling = MissingData.LISTWISE
     if not ordinal_items:
         handling, _ = refit_missing_handling(frame, spec.observed_names, missing)
