@@ -54,8 +54,8 @@ class OddKind(enum.Enum):
 @dataclass(frozen=True)
 class OddValues:
     """Values of one kind that look like no answers: a code (``kind`` MISSING_CODE, one ``value`` in several
-    columns) or one row (the other kinds: ``values`` per column).  ``rows`` are row numbers (1 = the first
-    row after the header); ``answers`` counts the cells."""
+    columns) or one row (the other kinds: ``values`` per column).  ``rows`` are row numbers (as the file
+    numbers them, data.moments.row_numbers); ``answers`` counts the cells."""
 
     kind: OddKind
     columns: tuple[str, ...]
