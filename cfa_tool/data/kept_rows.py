@@ -15,6 +15,15 @@ KEPT_BY = "kept_by_row_filters"
 SHEET_COLUMNS = "sheet_columns"
 
 
+def rows_listed(numbers, shown: int = 5) -> str:
+    """Rows named by their numbers (data.moments.row_numbers), the first ``shown`` of them: 'row 711',
+    'rows 152, 154, 424, 709, 710 and 3 more'."""
+    numbers = [int(n) for n in numbers]
+    listed = ", ".join(str(n) for n in numbers[:shown])
+    more = f" and {len(numbers) - shown} more" if len(numbers) > shown else ""
+    return f"{'row' if len(numbers) == 1 else 'rows'} {listed}{more}"
+
+
 def cell_words(frame: pd.DataFrame | pd.Series, column: str, row: int) -> str:
     """Where a cell is, for a message: 'row 425, cell E425' for a sheet's table (``row``: the number of the row as
     data.moments.row_numbers gives it, the sheet's own), 'row 425' otherwise."""

@@ -24,6 +24,7 @@ from cfa_tool.assessment.normality import Whitened, mardia, whitened_rows
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
 from cfa_tool.assessment.standardized import r_squared, standardization, standardize_entries
+from cfa_tool.data.kept_rows import rows_listed
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, moments_with_gaps
 from cfa_tool.errors import CfaError, OptionError
@@ -232,8 +233,7 @@ def rows_left_out(groups, missing: MissingData | None,
             (cautions if caution else notes).append(line)
         else:
             rows = numbers[0] if numbers and numbers[0] is not None and len(numbers[0]) == dropped else ()
-            named = (f" ({'row' if dropped == 1 else 'rows'} {', '.join(str(int(r)) for r in rows[:5])}"
-                     + (f" and {dropped - 5} more" if dropped > 5 else "") + ")") if len(rows) else ""
+            named = f" ({rows_listed(rows)})" if len(rows) else ""
             notes.append(f"{dropped} of {read} {'row' if read == 1 else 'rows'}{where} answered none of the model "
                          f"variables and {'was' if dropped == 1 else 'were'} left out{named}")
     return cautions, notes

@@ -1223,7 +1223,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     odd_rows = {row for odd in loaded.odd_values for row in odd.rows}
     odd_complete = int(np.isin(row_numbers(answered)[every_item], list(odd_rows)).sum()) if odd_rows else 0
     complete = int(every_item.sum()) - odd_complete
-    empty = int((~answered.any(axis=1)).sum())
+    unanswered = ~answered.any(axis=1).to_numpy()
+    empty = int(unanswered.sum())
     coverage = {name: float(v) for name, v in answered.mean(axis=0).items()} if len(answered) else {}
     counted = None
     if design is not None and design.kind is WeightKind.FREQUENCY:  # the rows as the fit counts them (its N)
@@ -1241,5 +1242,6 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,
                        group_rows=tuple(m.n_obs for _, m in groups) if labels else (),
                        group_parameters=tuple(group_parameter_counts(table)) if labels and not ordinal_items else (),
-                       zero_weight=len(loaded.frame) - len(frame))
+                       zero_weight=len(loaded.frame) - len(frame),
+                       empty_rows=tuple(int(r) for r in row_numbers(answered)[unanswered]))
 

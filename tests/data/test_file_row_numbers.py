@@ -102,7 +102,8 @@ def test_blank_rows_and_a_footer_count_alike_in_the_file_and_a_data_frame(rider_
         assert gaps and gaps[0].startswith(f"{gaps_by_pandas} of {len(rider_demo) + 1} rows")
         blank = [w for w in result.warnings if "with no value in any column" in w]
         assert blank and blank[0].count(",") >= 4  # the rows are named
-    assert checked.with_gaps == gaps_by_pandas and checked.empty == 1
+    assert checked.with_gaps == gaps_by_pandas and checked.empty == 1 and checked.empty_rows == (footer_row,)
+    assert f"1 with no answer to any model variable (row {footer_row})." in checked.summary()
     file_notes = [w for w in from_file.warnings if "answered none of the model variables" in w]
     assert file_notes == [f"1 of {len(rider_demo) + 1} rows answered none of the model variables and was left out "
                           f"(row {footer_row})"]
