@@ -15,11 +15,14 @@ KEPT_BY = "kept_by_row_filters"
 SHEET_COLUMNS = "sheet_columns"
 
 
-def rows_listed(numbers, shown: int = 5) -> str:
-    """Rows named by their numbers (data.moments.row_numbers), the first ``shown`` of them: 'row 711',
+def rows_listed(numbers, shown: int = 5, ids=()) -> str:
+    """Rows named by their numbers (data.moments.row_numbers), the first ``shown`` of them, each with its id when
+    ``ids`` gives one (one per row, None where a row has none): 'row 711 ('Total responses: 1204')',
     'rows 152, 154, 424, 709, 710 and 3 more'."""
     numbers = [int(n) for n in numbers]
-    listed = ", ".join(str(n) for n in numbers[:shown])
+    ids = list(ids) if len(ids) == len(numbers) else [None] * len(numbers)
+    listed = ", ".join(str(n) + (f" ('{printable(str(i))[:40]}')" if i is not None else "")
+                       for n, i in zip(numbers[:shown], ids))
     more = f" and {len(numbers) - shown} more" if len(numbers) > shown else ""
     return f"{'row' if len(numbers) == 1 else 'rows'} {listed}{more}"
 

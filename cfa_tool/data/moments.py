@@ -39,6 +39,8 @@ class SampleMoments:
     analysed: object | None = field(default=None, compare=False)
     #: the row numbers of the rows left out because they answer no model variable (rows with gaps kept)
     unanswered_rows: np.ndarray | None = field(default=None, repr=False, compare=False)
+    #: their ids (data.row_ids: an id column or the file's row names; None where a row has none), when known
+    unanswered_ids: tuple = field(default=(), repr=False, compare=False)
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:

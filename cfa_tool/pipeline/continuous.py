@@ -219,12 +219,12 @@ def listwise_line(dropped: int, read: int, analysed: int, where: str = "",
 def rows_left_out(groups, missing: MissingData | None,
                   instead: str = FULL_INFORMATION_INSTEAD) -> tuple[list[str], list[str]]:
     """(cautions, notes) on the rows a fit left out, from ``groups``: (label or None, rows left out, rows read,
-    rows analysed[, the row numbers of the rows that answer nothing]) of each group; listwise deletion by
+    rows analysed[, the row numbers of the rows that answer nothing[, their ids]]) of each group; listwise deletion by
     :func:`listwise_line`, otherwise (full-information ML, pairwise present rows) the rows that answered none of
     the model variables, in a note naming the first of them."""
     cautions: list[str] = []
     notes: list[str] = []
-    for label, dropped, read, analysed, *numbers in groups:
+    for label, dropped, read, analysed, *named in groups:
         if not dropped:
             continue
         where = f" in group '{label}'" if label is not None else ""
@@ -232,10 +232,10 @@ def rows_left_out(groups, missing: MissingData | None,
             caution, line = listwise_line(dropped, read, analysed, where, instead)
             (cautions if caution else notes).append(line)
         else:
-            rows = numbers[0] if numbers and numbers[0] is not None and len(numbers[0]) == dropped else ()
-            named = f" ({rows_listed(rows)})" if len(rows) else ""
+            rows = named[0] if named and named[0] is not None and len(named[0]) == dropped else ()
+            listed = f" ({rows_listed(rows, ids=named[1] if len(named) > 1 else ())})" if len(rows) else ""
             notes.append(f"{dropped} of {read} {'row' if read == 1 else 'rows'}{where} answered none of the model "
-                         f"variables and {'was' if dropped == 1 else 'were'} left out{named}")
+                         f"variables and {'was' if dropped == 1 else 'were'} left out{listed}")
     return cautions, notes
 
 
@@ -257,8 +257,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         standardized[sel], factors_standardized[sel] = standardize_entries(mats[g], codes, rows, cols, values[sel],
                                                                            layout)
 
-    cautions, notes = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs, m.unanswered_rows)
-                                     for label, m in groups],
+    cautions, notes = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs, m.unanswered_rows,
+                                      m.unanswered_ids) for label, m in groups],
                                     options.missing)
     warnings: list[str] = cautions + notes
     fit = None

@@ -358,7 +358,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     loaded = analysed_odd_values(loaded, spec, group)
     with odd_values_named(loaded):
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
-                                       ordinal_estimator, design), ids_by_row_number(ids, frame))
+                                       ordinal_estimator, design, ids), ids_by_row_number(ids, frame))
     reference_group_applies(result, reference_group)
     result = with_missing_reading(with_odd_values(result, loaded, group), loaded, missing_codes)
     weighted_out = weighted_out_problems(loaded.frame, group, design)  # a group the weights leave out: first
@@ -754,10 +754,12 @@ def with_rows_read(result: FitResult, loaded: LoadedData) -> FitResult:
 
 
 def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
-             design: DesignColumns | None = None) -> FitResult:
+             design: DesignColumns | None = None, ids: pd.Series | None = None) -> FitResult:
     """The fit of rows of raw data (after reading, filters and model checks), its data summary naming the
-    row filters and the rows the file held before them."""
-    result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
+    row filters and the rows the file held before them (``ids``: each row's id, data.row_ids, which name the rows
+    left out)."""
+    result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design,
+                            ids)
     if group is not None or design is not None:
         result = with_rows_read(result, loaded)
     return with_row_filters(result, loaded)
@@ -773,7 +775,7 @@ def with_row_filters(result, loaded: LoadedData):
 
 
 def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
-                   design: DesignColumns | None = None) -> FitResult:
+                   design: DesignColumns | None = None, ids: pd.Series | None = None) -> FitResult:
     frame, source = loaded.frame, loaded.source
     ordinal_items = ordinal_items_of(spec, ordinal)
     spec = with_ordinal_levels(spec, ordinal_items)
@@ -806,6 +808,9 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
         groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design,
                                           values)
         notes += group_notes
+        if ids is not None:  # the rows that answer nothing named by their ids too (a footer: its text)
+            groups = [(label, replace(m, unanswered_ids=tuple(ids.get(int(r) - 1) for r in m.unanswered_rows)))
+                      if m.unanswered_rows is not None and len(m.unanswered_rows) else (label, m) for label, m in groups]
         result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     if design is not None:
         result = with_design(result, design_summary(frame, design, [m for _, m in groups]))

@@ -107,6 +107,8 @@ def test_blank_rows_and_a_footer_count_alike_in_the_file_and_a_data_frame(rider_
     file_notes = [w for w in from_file.warnings if "answered none of the model variables" in w]
     assert file_notes == [f"1 of {len(rider_demo) + 1} rows answered none of the model variables and was left out "
                           f"(row {footer_row})"]
+    with_ids = cfa_tool.fit(rider_model, str(path), id_column="rider_id")  # the footer's text is its id
+    assert any(w.endswith(f"left out (row {footer_row} ('{FOOTER}'))") for w in with_ids.warnings)
     blank_rows = next(w for w in from_file.warnings if "with no value in any column" in w)
     assert f"rows {rows[40] + 1}, {rows[40] + 2}, {rows[41] + 1}, {rows[41] + 2}, {rows[200] + 1} and 3 more" in blank_rows
     # the same coverage in both methods paragraphs
