@@ -108,7 +108,7 @@ class DataError(UserInputError):
 
 
 class RowDataError(DataError):
-    """A :class:`DataError` about one data row (``row``: its data-row number, 1 = the first row after the header), so
+    """A :class:`DataError` about one data row (``row``: its number in the file, data.moments.row_numbers), so
     that a caller that knows more of that row (a row of means or totals found on reading) can say so first."""
 
     def __init__(self, message: str, row: int):

@@ -161,6 +161,7 @@ class Option(enum.Enum):
     GROUP_COLUMN = ("--group-column", "group")
     REFERENCE_GROUP = ("--reference-group", "reference_group")
     ID_COLUMN = ("--id", "id_column")
+    NAMES_ROW = ("--names-row", "names_row")
     ROBUST = ("--robust", "test", "robust")
     INCOMPLETE_ROWS = ("--incomplete-rows", "missing")
     STANDARD_ERRORS_FROM = ("--standard-errors-from", "information")

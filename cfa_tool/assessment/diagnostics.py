@@ -29,7 +29,7 @@ from cfa_tool.numerics.linalg import spd_inverse
 
 @dataclass(frozen=True)
 class CaseDiagnostic:
-    row: int  # data row number in the file (1 = first row after the header)
+    row: int  # the row's number in the file (a sheet's row, a text file's line: data.moments.row_numbers)
     mahalanobis: float
     p_value: float
     chi_square_share: float

@@ -221,19 +221,20 @@ HALVES_FILE = "--halves-file"
 
 
 def add_halves_file(parser, asked: str) -> None:
-    """The option that saves which data rows went to which random half (``asked``: what makes the halves)."""
+    """The option that saves which rows went to which random half (``asked``: what makes the halves)."""
     parser.add_argument(HALVES_FILE, metavar="FILE.csv",
-                        help=f"with {asked}: write which data rows went to which half, a CSV of the data-row numbers "
-                             f"(1 = the first row after the header) and the half; an existing file is never replaced")
+                        help=f"with {asked}: write which rows went to which half, a CSV of the rows' numbers (as the "
+                             f"file numbers them: a sheet's rows, a text file's lines) and the half; an existing file is "
+                             f"never replaced")
 
 
 def halves_file(args: argparse.Namespace, halves: list[tuple[str, tuple[int, ...]]]) -> list[tuple[str, object, str]]:
     """(option, content, message) of --halves-file when asked: one line per row split, in the order of the rows,
-    'data_row,half' (``halves``: each half's name and its data-row numbers)."""
+    'row,half' (``halves``: each half's name and its rows' numbers, data.moments.row_numbers)."""
     if not getattr(args, "halves_file", None):
         return []
     rows = sorted((row, name) for name, numbers in halves for row in numbers)
-    text = "data_row,half\n" + "".join(f"{row},{name}\n" for row, name in rows)
+    text = "row,half\n" + "".join(f"{row},{name}\n" for row, name in rows)
     return [(HALVES_FILE, text, f"The rows of each half written to {args.halves_file}")]
 
 

@@ -33,11 +33,25 @@ def add_model_and_data(p: argparse.ArgumentParser, data_help: str = "data file")
 def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
     """--sheet, --missing-codes and (``filters``) --keep."""
     p.add_argument("--sheet", metavar="NAME", help="sheet of an Excel workbook (default: the first)")
+    p.add_argument("--names-row", metavar="N", type=_row_number, default=None,
+                   help="the row of a sheet (or line of a text file) that holds the column names, when rows above it "
+                        "hold other headings such as question texts; those rows are not read (default: the first row "
+                        "with values)")
     p.add_argument("--missing-codes", metavar="LIST", type=_codes, default=(),
                    help="comma-separated values that mean 'no answer', e.g. -99,999")
     if filters:
         p.add_argument("--keep", metavar="FILTER", action="append", default=[],
                        help="keep only rows that meet COLUMN OPERATOR VALUE, e.g. 'district = north' (repeatable)")
+
+
+def _row_number(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        value = 0
+    if value < 1 or not text.strip().isdigit():
+        raise argparse.ArgumentTypeError(f"the row of column names must be a row number (1 or more), not '{text}'")
+    return value
 
 
 def _codes(text: str) -> tuple[float, ...]:

@@ -36,7 +36,8 @@ def run(args: argparse.Namespace) -> int:
     if args.data and (args.calibration or args.validation):
         raise OptionError("give either --data (split-half) or --calibration and --validation, not both")
     ordinal = {"ordinal": O.ordinal_arg(args.ordinal), "ordinal_estimator": args.ordinal_estimator,
-               "missing": args.missing, "sheet": args.sheet, "missing_codes": args.missing_codes}
+               "missing": args.missing, "sheet": args.sheet, "missing_codes": args.missing_codes,
+               "names_row": args.names_row}
     if args.halves_file and not args.data:
         raise OptionError("--halves-file saves the random halves of one data file (--data), and --calibration and "
                           "--validation are not split")

@@ -3,7 +3,7 @@
 The tool never guesses the order of answer words: only words an 'answers' statement lists are coded, each to the
 number the statement gives it.  Matching ignores case and the spaces around a word, never parts of words; an
 empty cell stays no answer; any other cell (a word not listed, a number the statement does not list) is an error
-naming the file, column, data row and the cell.
+naming the file, column, row and the cell.
 """
 
 from __future__ import annotations
@@ -86,7 +86,7 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
             code, wrong = _code_of(value, words, numbers)
             if wrong == "number" and not any(isinstance(v, str) and answer_key(v) in words for v in distinct):
                 raise DataError(f"{source}: column '{printable(item)}' holds numbers, not the words of {coding.origin} "
-                                f"('{_shown(value)}' in data row {_first_row(column, value, row_numbers(column))}); "
+                                f"('{_shown(value)}' in row {_first_row(column, value, row_numbers(column))}); "
                                 + ("name the items whose answers are words with 'for ITEMS' at the end of the statement"
                                    if coding.carried_from is None and not coding.items else
                                    "take the column out of the statement's items" if coding.carried_from is None else
@@ -123,13 +123,13 @@ def _check_codes_of_answers(coding: AnswerCoding, no_answer: set[float]) -> None
 
 
 def _first_row(column: pd.Series, value: object, rows: np.ndarray) -> int:
-    """The data-row number of the first cell holding ``value``."""
+    """The row number of the first cell holding ``value``."""
     return int(rows[int(np.flatnonzero(column.to_numpy(dtype=object) == value)[0])])
 
 
 def _cell_error(source: str, item: str, column: pd.Series, value: object, wrong: str, coding: AnswerCoding,
                 rows: np.ndarray) -> DataError:
-    where = f"{source}: column '{printable(item)}', data row {_first_row(column, value, rows)}"
+    where = f"{source}: column '{printable(item)}', row {_first_row(column, value, rows)}"
     line = coding.origin
     if wrong == "word":
         marks = character_names(str(value), "".join(a.shown for a in coding.answers))  # a look-alike letter shown

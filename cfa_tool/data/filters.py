@@ -103,7 +103,7 @@ def _second_operator(text: str, start: int, op: str, position: int) -> str:
 
 
 def _first_text(column: pd.Series, numeric: pd.Series) -> str:
-    """Words naming the first cell of a column of numbers that is not a number ('65+' in data row 4), or ''."""
+    """Words naming the first cell of a column of numbers that is not a number ('65+' in row 4), or ''."""
     text = column.notna().to_numpy() & numeric.isna().to_numpy()
     if not text.any() or text.sum() * 2 > column.notna().sum():  # a column of text: no one cell to name
         return ""
@@ -115,7 +115,7 @@ def _first_text(column: pd.Series, numeric: pd.Series) -> str:
     # words that say no answer are read as missing in item columns only (data.readers): a filter can leave them out
     first = (f", or leave its rows out first with --keep \"{printable(str(column.name))} != '{printable(cell.strip())}'\""
              if says_no_answer(cell) and "'" not in cell else "")
-    return (f" ('{printable(cell)}' in data row {row_numbers(column)[k]}"
+    return (f" ('{printable(cell)}' in row {row_numbers(column)[k]}"
             + (f", and {more} more such cell{'s' if more != 1 else ''}" if more else "")
             + f", among numbers: correct it or leave it empty in a copy of the file to compare numbers{first})")
 

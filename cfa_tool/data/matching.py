@@ -137,8 +137,8 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
     for keying, stray in found.items():
         shown = []
         for name, v, where, label in stray[:6]:
-            cells = (f"data row {where[0]}" if len(where) == 1 else
-                     f"{len(where)} cells: data rows {', '.join(str(r) for r in where[:3])}"
+            cells = (f"row {where[0]}" if len(where) == 1 else
+                     f"{len(where)} cells: rows {', '.join(str(r) for r in where[:3])}"
                      + (" and more" if len(where) > 3 else ""))
             shown.append(f"'{name}' {v:g}" + (f" '{label}'" if label else "") + f" ({cells})")
         more = f" and {len(stray) - 6} more" if len(stray) > 6 else ""
@@ -204,7 +204,7 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
         rows = row_numbers(frame) if rows is None else rows
         where = rows[mask]
         shown = ", ".join(str(r) for r in where[:5])
-        return f"data row{'s' if len(where) > 1 else ''} {shown}" + (f" and {len(where) - 5} more" if len(where) > 5 else "")
+        return f"row{'s' if len(where) > 1 else ''} {shown}" + (f" and {len(where) - 5} more" if len(where) > 5 else "")
 
     for x in judged:
         column = columns.get(x)

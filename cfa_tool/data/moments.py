@@ -13,6 +13,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.answer_scales import MOST_WORDS_SHOWN, distinct_words, suggested_statement
+from cfa_tool.data.kept_rows import cell_words
 from cfa_tool.errors import DataError, EstimationError, printable
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData
@@ -31,12 +32,16 @@ class SampleMoments:
     source: str
     group: str | None = None  # 'label of column' for one group of a multi-group data set
     rows: np.ndarray | None = field(default=None, repr=False, compare=False)  # the complete rows analysed
-    row_numbers: np.ndarray | None = field(default=None, repr=False, compare=False)  # their data-row numbers (1-based)
+    row_numbers: np.ndarray | None = field(default=None, repr=False, compare=False)  # their row numbers in the file
     design: object | None = field(default=None, repr=False, compare=False)  # data.sample_design.RowDesign of the rows
     #: what summary statistics left out (data.summary_stats.NotGiven): the fit then knows no item means or no units
     not_given: tuple = field(default=(), compare=False)
     #: summary statistics: which matrix was given (data.summary_stats.AnalysedMatrix); None for rows of answers
     analysed: object | None = field(default=None, compare=False)
+    #: the row numbers of the rows left out because they answer no model variable (rows with gaps kept)
+    unanswered_rows: np.ndarray | None = field(default=None, repr=False, compare=False)
+    #: their ids (data.row_ids: an id column or the file's row names; None where a row has none), when known
+    unanswered_ids: tuple = field(default=(), repr=False, compare=False)
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
@@ -156,11 +161,11 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
     when needed, so that each kind of bad cell gets its own message."""
     values = column.to_numpy(dtype=object)
     out = np.full(len(values), np.nan)
-    numbers = row_numbers(column)  # data-row numbers, also after row filters
+    numbers = row_numbers(column)  # the file's row numbers, also after row filters
     for row, value in enumerate(values):
         if value is None or value is pd.NA or value is pd.NaT or (isinstance(value, float) and value != value):
             continue
-        where = f"{source}: column '{printable(name)}', data row {numbers[row]}"
+        where = f"{source}: column '{printable(name)}', {cell_words(column, name, numbers[row])}"
         if isinstance(value, (bool, np.bool_)):
             raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
         if isinstance(value, (complex, np.complexfloating)):
@@ -182,7 +187,7 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
                 raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
             shown = printable(text if len(text) <= 40 else text[:37] + "...")
             raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "
-                            f"data row {numbers[row]}); indicators must be numbers: {_recoding(text)}"
+                            f"{cell_words(column, name, numbers[row])}); indicators must be numbers: {_recoding(text)}"
                             + _statement_hint(values))
         out[row] = number
     return out
@@ -244,8 +249,8 @@ def _checked_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str,
         infinite = np.isinf(values)
         if infinite.any():
             row, col = np.argwhere(infinite)[0]
-            raise DataError(f"{source}: column '{printable(names[col])}' has an infinite value in data row "
-                            f"{row_numbers(frame)[row]}")
+            raise DataError(f"{source}: column '{printable(names[col])}' has an infinite value in "
+                            f"{cell_words(frame, names[col], row_numbers(frame)[row])}")
         empty = np.flatnonzero(np.isnan(values).all(axis=0))
         from cfa_tool.data.kept_rows import KEPT_BY, rows_described
 
@@ -277,8 +282,8 @@ def _checked_rows(frame: pd.DataFrame, names: tuple[str, ...], source: str,
     if (largest > LARGEST_VALUE).any():
         col = int(np.flatnonzero(largest > LARGEST_VALUE)[0])
         row = int(np.nanargmax(np.abs(values[:, col])))
-        raise DataError(f"{source}: column '{printable(names[col])}' holds {values[row, col]:.3g} (data row "
-                        f"{row_numbers(frame)[row]}), too "
+        raise DataError(f"{source}: column '{printable(names[col])}' holds {values[row, col]:.3g} "
+                        f"({cell_words(frame, names[col], row_numbers(frame)[row])}), too "
                         f"large to compute with; if the value is right, divide the column by a power of ten (the fit does "
                         f"not change), otherwise correct it")
     return values, finite
@@ -328,8 +333,16 @@ def _check_combinations(corr: np.ndarray, names: tuple[str, ...], source: str, a
         )
 
 
+def file_rows_index(numbers) -> pd.Index:
+    """The index a reader gives the rows it read: each row's number in the file (a sheet's row, a text file's line
+    on which the row starts, an SPSS or Stata case) less one, so that :func:`row_numbers` (index + 1, as for a data
+    frame's own 0-based rows) names every row as the file shows it, blank rows and header rows counted."""
+    return pd.Index(np.asarray(numbers, dtype=np.int64) - 1)
+
+
 def row_numbers(frame: pd.DataFrame | pd.Series) -> np.ndarray:
-    """1-based data-row numbers: from the index when it counts rows (files, filtered files), else positions."""
+    """1-based row numbers as messages name rows: the index + 1 when it counts rows (a file's rows, whose reader
+    set it by :func:`file_rows_index`, also after row filters; a data frame's 0-based rows), else positions."""
     index = frame.index
     if isinstance(index, pd.RangeIndex) and index.start >= 0 and index.step == 1:  # the common case, without type checks
         return np.arange(index.start + 1, index.stop + 1)
@@ -432,7 +445,8 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
                               f"{remedy}") from None
     _check_moments(sigma, mu, names, source)
     return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data,
-                         numbers[answered] if numbers is not None else None)
+                         numbers[answered] if numbers is not None else None,
+                         unanswered_rows=numbers[~answered] if numbers is not None else None)
 
 
 def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20,

@@ -84,7 +84,7 @@ class NonAnswerKind(enum.Enum):
 @dataclass(frozen=True)
 class NonAnswer:
     """One code (or text) of one column that the file marks as no answer, read as missing: ``rows`` are the
-    data-row numbers (1 = the first row after the header) of its cells."""
+    row numbers (as the file numbers them) of its cells."""
 
     kind: NonAnswerKind
     column: str
@@ -178,7 +178,7 @@ def unlabelled_extra_codes(column: np.ndarray, labels: dict) -> list[tuple[float
 class BeyondScale:
     """A labelled code beyond the answer scale of one or more items (:func:`unlabelled_extra_codes`), analysed as an
     answer but named first, once for all the items that hold it with the same label and scale: ``rows`` are the
-    data-row numbers of its cells in each of ``columns``."""
+    row numbers of its cells in each of ``columns``."""
 
     columns: tuple[str, ...]
     value: float
@@ -209,7 +209,7 @@ class BeyondScale:
 
 def beyond_scale(frame: pd.DataFrame, names, value_labels: dict, rows: np.ndarray) -> tuple[BeyondScale, ...]:
     """The labelled codes beyond the answer scales of the item columns ``names`` (:func:`unlabelled_extra_codes`),
-    one for each code, label and scale, naming every item that holds it; ``rows``: the data-row numbers of
+    one for each code, label and scale, naming every item that holds it; ``rows``: the row numbers of
     ``frame``'s rows."""
     found: dict[tuple, list] = {}
     for column in names:

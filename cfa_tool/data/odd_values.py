@@ -54,8 +54,8 @@ class OddKind(enum.Enum):
 @dataclass(frozen=True)
 class OddValues:
     """Values of one kind that look like no answers: a code (``kind`` MISSING_CODE, one ``value`` in several
-    columns) or one row (the other kinds: ``values`` per column).  ``rows`` are data-row numbers (1 = the first
-    row after the header); ``answers`` counts the cells."""
+    columns) or one row (the other kinds: ``values`` per column).  ``rows`` are row numbers (as the file
+    numbers them, data.moments.row_numbers); ``answers`` counts the cells."""
 
     kind: OddKind
     columns: tuple[str, ...]
@@ -74,7 +74,7 @@ class OddValues:
             where = (f"The item column {printable(self.columns[0])} of {name} holds" if len(self.columns) == 1 else
                      f"{len(self.columns)} item columns of {name} ({_listed(self.columns)}) hold")
             return (f"{where} the value "
-                    f"{value} ({self.answers} answers in {len(self.rows)} {rows}: data {rows} {_listed(self.rows)}), "
+                    f"{value} ({self.answers} answers in {len(self.rows)} {rows}: {rows} {_listed(self.rows)}), "
                     f"far outside the other answers ({_number(low)} to {_number(high)}): a missing-value code read "
                     f"as an answer?")
         shown = ", ".join(f"{printable(c)} {_number(v)}" for c, v in zip(self.columns[:SHOWN], self.values[:SHOWN]))
@@ -84,13 +84,13 @@ class OddValues:
                 OddKind.MEANS_ROW: "the means of the other rows' answers"}[self.kind]
         guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
                  else "a totals or means row of a spreadsheet?")
-        return (f"Data row {self.rows[0]} of {name} holds {what} in {len(self.columns)} item "
+        return (f"Row {self.rows[0]} of {name} holds {what} in {len(self.columns)} item "
                 f"column{'s' if len(self.columns) != 1 else ''} ({shown}{more}): {guess}")
 
     def kept_words(self) -> str:
         """The finding in the words of a methods section, for a run that analysed the values as the file holds them:
         'the value -99 in x2 and x5 (7 answers), far outside the other answers (1 to 5): perhaps a missing-value code',
-        'data row 302, whose values equal the means of the other rows' answers in every item column it answers (9):
+        'row 302, whose values equal the means of the other rows' answers in every item column it answers (9):
         perhaps a means row'."""
         low, high = self.others
         if self.kind is OddKind.MISSING_CODE:
@@ -98,18 +98,18 @@ class OddValues:
                     f"({self.answers} answer{'s' if self.answers != 1 else ''}), far outside the other answers "
                     f"({_number(low)} to {_number(high)}): perhaps a missing-value code")
         if self.kind is OddKind.FAR_BEYOND:
-            return (f"data row {self.rows[0]}, with values far beyond every other row's answers ({_number(low)} to "
+            return (f"row {self.rows[0]}, with values far beyond every other row's answers ({_number(low)} to "
                     f"{_number(high)}) in {len(self.columns)} item column{'s' if len(self.columns) != 1 else ''}: "
                     f"perhaps a totals row or a typing error")
         which = "sums" if self.kind is OddKind.SUMS_ROW else "means"
-        return (f"data row {self.rows[0]}, whose values equal the {which} of the other rows' answers in every item "
+        return (f"row {self.rows[0]}, whose values equal the {which} of the other rows' answers in every item "
                 f"column it answers ({len(self.columns)}): perhaps a {'totals' if which == 'sums' else 'means'} row")
 
     def advice(self) -> str:
         if self.kind is OddKind.MISSING_CODE:
             return (f"If {_number(self.values[0])} means 'no answer', give --missing-codes {_number(self.values[0])} "
                     f"(or correct those answers in the file).")
-        return (f"Delete data row {self.rows[0]} from the file (or leave it out with a --keep filter) if it holds no "
+        return (f"Delete row {self.rows[0]} from the file (or leave it out with a --keep filter) if it holds no "
                 f"one's answers; otherwise check those answers.")
 
     def to_dict(self) -> dict:

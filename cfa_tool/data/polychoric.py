@@ -490,7 +490,7 @@ def check_whole_answers(values: np.ndarray, frame: pd.DataFrame, names: tuple[st
     more = f" (and {others} other fractional {'answer' if others == 1 else 'answers'})" if others else ""
     number = int(row_numbers(frame)[row])
     raise RowDataError(f"{source}{where}: ordinal item '{printable(names[j])}' has the answer {values[row, j]:g} in "
-                       f"data row {number}{more}; the answers of an ordinal item are category codes (whole numbers): "
+                       f"row {number}{more}; the answers of an ordinal item are category codes (whole numbers): "
                        f"correct the value, or analyse the item as continuous", number)
 
 

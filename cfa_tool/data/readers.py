@@ -16,18 +16,20 @@ import io
 import re
 from collections.abc import Collection
 from dataclasses import dataclass, field, replace
+from enum import Enum
 from pathlib import Path
 from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.kept_rows import SHEET_COLUMNS, rows_listed
 from cfa_tool.data.missing_codes import apply_missing_codes
-from cfa_tool.data.moments import column_dtypes, stored_column
+from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
 from cfa_tool.errors import DataError, printable
 from cfa_tool.options import Option
-from cfa_tool.input_files import check_input_path, input_bytes, utf16_text
+from cfa_tool.input_files import check_input_path, input_bytes, normalise_line_ends, text_lines, utf16_text
 from cfa_tool.numbers import number
 
 if TYPE_CHECKING:
@@ -62,6 +64,8 @@ class LoadedData:
     #: what reading found that every view names first, though the rows are analysed as the file holds them:
     #: objects with ``caution(source)`` and ``advice()`` (data.non_answers.BeyondScale, HiddenRows)
     cautions: tuple = ()
+    #: how a delimited text file was read (TextReading: encoding, separator, decimal mark); None for other files
+    reading: TextReading | None = None
 
     def sheet_hint(self) -> str:
         """Words for a message about a missing column: which sheet of a workbook of several was read."""
@@ -80,14 +84,18 @@ STATA_SUFFIXES = (".dta",)
 
 def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               text_columns: tuple[str, ...] = (), items: Collection[str] | None = None,
-              listed: dict[str, frozenset[str]] | None = None, filters: Collection = ()) -> LoadedData:
+              listed: dict[str, frozenset[str]] | None = None, filters: Collection = (),
+              names_row: int | None = None) -> LoadedData:
     """Any supported file -> LoadedData; ``missing_codes`` are values that mean 'no answer'; ``text_columns``
     (an id column) are read from delimited text as written ('007' stays '007').  ``items``: the model's item
     columns, the only ones whose text cells and value labels that say no answer ('Not applicable', 9 'refused') are
     read as missing (data.non_answers); a group, id, weight or cluster column keeps such a value as it is (a group
     named 'N/A' stays a group).  None (no model yet): every column but ``text_columns``.  ``listed``: each item's
     words that the model's 'answers' statements code, answers whatever they say.  ``filters``: the row filters the
-    caller applies next (data.filters.RowFilter), which the notes do not suggest again."""
+    caller applies next (data.filters.RowFilter), which the notes do not suggest again.  ``names_row``: the row (of a
+    sheet) or line (of a text file) that holds the column names, the rows above it not read (a survey platform's
+    question texts above the item codes).  The frame's index numbers its rows as the file does (a sheet's rows, a
+    text file's lines: data.moments.file_rows_index); rows with no value in any column are left out with a note."""
     path = Path(path)
     suffix = path.suffix.lower()
     binary = suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES
@@ -96,13 +104,16 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         raise DataError(f"data file '{path}' is empty")
     if sheet is not None and suffix not in EXCEL_SUFFIXES:
         raise DataError(f"'{path}' is not an Excel workbook, so a sheet cannot be chosen")
+    if names_row is not None and suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
+        raise DataError(f"'{path}' is an {'SPSS' if suffix in SPSS_SUFFIXES else 'Stata'} file, whose variables have "
+                        f"their names, so a row of column names (--names-row) cannot apply")
     if suffix in EXCEL_SUFFIXES:
         notes: list[str] = []
         names: list[pd.Series] = []
         sheets: list[str] = []
         hidden: list = []
-        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden), str(path), notes=tuple(notes),
-                            row_names=names[0] if names else None, cautions=tuple(hidden),
+        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, items, names_row), str(path),
+                            notes=tuple(notes), row_names=names[0] if names else None, cautions=tuple(hidden),
                             sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else ())
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _read_labelled(path)
@@ -111,11 +122,19 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     else:
         notes = []
         names = []
-        loaded = LoadedData(read_table(path, notes, names, text_columns), str(path), notes=tuple(notes),
-                            row_names=names[0] if names else None)
+        reading: list[TextReading] = []
+        loaded = LoadedData(read_table(path, notes, names, text_columns, items, names_row, reading), str(path),
+                            notes=tuple(notes), row_names=names[0] if names else None,
+                            reading=reading[0] if reading else None)
+        if loaded.reading is not None and not loaded.reading.plain():  # said when it is not plain UTF-8 with commas
+            loaded = replace(loaded, notes=(f"{path}: {loaded.reading.words()}",) + loaded.notes)
     loaded = _composed_names(loaded)
     if suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES:  # delimited text: read_table read them so
         loaded = replace(loaded, frame=blank_text_as_missing(loaded.frame, text_columns))
+    frame, blank_note = drop_blank_rows(loaded.frame, str(path))
+    if blank_note:
+        names = loaded.row_names.loc[frame.index] if loaded.row_names is not None else None
+        loaded = replace(loaded, frame=frame, notes=loaded.notes + blank_note, row_names=names)
     if suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _numbers_from_text(loaded, text_columns)
     mine = None if items is None else {str(x) for x in items}
@@ -129,6 +148,20 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     if code_notes:
         loaded = replace(loaded, notes=loaded.notes + code_notes)
     return loaded
+
+
+def sheet_of_each(sources, sheet: str | None) -> tuple[str | None, ...]:
+    """The sheet to read in each of several data sources (``sheet``: the one --sheet names): the workbooks among
+    them, a CSV file or a data frame beside a workbook read as it is; an error when none is a workbook (a sheet that
+    cannot apply)."""
+    workbook = [isinstance(s, (str, Path)) and Path(s).suffix.lower() in EXCEL_SUFFIXES for s in sources]
+    if sheet is None:
+        return tuple(None for _ in sources)
+    if not any(workbook):
+        named = " and ".join(f"'{printable(str(s))}'" if isinstance(s, (str, Path)) else "a data frame" for s in sources)
+        raise DataError(f"none of {named} is an Excel workbook, so a sheet ('{printable(str(sheet))}') cannot be "
+                        f"chosen; leave --sheet out")
+    return tuple(sheet if w else None for w in workbook)
 
 
 def blank_text_as_missing(frame: pd.DataFrame, keep_text: tuple[str, ...] = (), markers: tuple[str, ...] = (),
@@ -233,9 +266,11 @@ def _composed_names(loaded: LoadedData) -> LoadedData:
 
 
 def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list | None = None,
-                sheets_out: list | None = None, hidden_out: list | None = None) -> pd.DataFrame:
+                sheets_out: list | None = None, hidden_out: list | None = None, items=None,
+                names_row: int | None = None) -> pd.DataFrame:
     try:
         import openpyxl
+        from openpyxl.utils import get_column_letter
     except ImportError:  # pragma: no cover - a declared dependency
         raise DataError("reading Excel files needs the openpyxl package") from None
     try:
@@ -267,8 +302,13 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     first = next((k for k, r in enumerate(rows) if any(v not in (None, "") for v in r)), None)
     if first is None:
         raise DataError(f"{where} is empty")
+    if names_row is not None:
+        first = _names_row_start(names_row, len(rows), first, where, "row")
+        if not any(v not in (None, "") for v in rows[first]):
+            raise DataError(f"{where}: row {names_row}, named by --names-row, is empty")
+        notes.append(_names_row_note(where, names_row, "row"))
     rows = rows[first:]  # empty rows above the header
-    title = _title_above_header(rows)
+    title = None if names_row is not None else _title_above_header(rows)
     if title is not None:
         notes.append(f"{where}: row {first + 1} holds a title ('{printable(title)[:60]}') above the column names, "
                      f"which were read from row {first + 2}")
@@ -297,13 +337,15 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
             raise DataError(f"{path} (sheet '{ws.title}'): row {number} has a value in column {beyond[0]}, which has "
                             f"no name in the header row ({_header_taken(f'row {first + 1}')})")
     _check_merged_answers(ws, where, header, first + 2, skipped)
-    kept = [k for k, r in enumerate(rows[1:], start=first + 2) if any(v is not None for v in r[:width])]
+    filled = [k for k, r in enumerate(rows[1:], start=first + 2) if any(v is not None for v in r[:width])]
+    # every row up to the last one with a value, empty ones too: they are left out, and named, by drop_blank_rows
+    kept = list(range(first + 2, filled[-1] + 1)) if filled else []
     body = [list(rows[k - first - 1][:width]) for k in kept]
     hidden_rows = {k for k, dimension in ws.row_dimensions.items() if dimension.hidden}
     if hidden_rows and hidden_out is not None:  # a filter, or rows hidden by hand: the file holds them all the same
-        data_rows = tuple(n for n, k in enumerate(kept, start=1) if k in hidden_rows)
-        if data_rows:
-            hidden_out.append(HiddenRows(ws.title, data_rows, len(kept), ws.auto_filter.ref is not None,
+        sheet_rows = tuple(k for k in filled if k in hidden_rows)
+        if sheet_rows:
+            hidden_out.append(HiddenRows(ws.title, sheet_rows, len(filled), ws.auto_filter.ref is not None,
                                          _filter_kept(ws, header, skipped)))
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
@@ -318,10 +360,11 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     _say_markers(found, where, notes)
     if any(v is None for r in body for v in r):
         _check_uncomputed_formulas(path, ws.title, first)
-    frame = pd.DataFrame(body, columns=header)
+    frame = pd.DataFrame(body, columns=header, index=file_rows_index(kept))
+    frame.attrs[SHEET_COLUMNS] = {name: get_column_letter(skipped + k + 1) for k, name in enumerate(header) if name}
     if marked:
         _keep_markers(frame, {header[k]: cells for k, cells in marked.items()})
-    _check_header_rows(frame, where, False)
+    _check_header_rows(frame, where, False, items=items, header_row=first + 1)
     if row_names:
         frame = _split_row_names(frame, names_out)
         notes.append(f"{path} (sheet '{ws.title}'): the first column has no name in the header and was read as row "
@@ -335,8 +378,8 @@ MAX_EXCEL_CELLS = 20_000_000
 @dataclass(frozen=True)
 class HiddenRows:
     """Rows of a sheet that the workbook hides (by a filter or by hand), read and analysed as the file holds them
-    but named first: a researcher who filtered the sheet to some rows sees only those.  ``rows``: data-row
-    numbers (1 = the first row under the header)."""
+    but named first: a researcher who filtered the sheet to some rows sees only those.  ``rows``: their rows in
+    the sheet."""
 
     sheet: str
     rows: tuple[int, ...]
@@ -346,7 +389,7 @@ class HiddenRows:
     filtered_out: int = 0  # hidden rows the row filters (--keep) left out
 
     def among(self, kept) -> HiddenRows | None:
-        """The hidden rows that row filters kept (``kept``: data-row numbers), or None when they kept none."""
+        """The hidden rows that row filters kept (``kept``: row numbers), or None when they kept none."""
         rows = tuple(r for r in self.rows if r in kept)
         return replace(self, rows=rows, filtered_out=self.filtered_out + len(self.rows) - len(rows)) if rows else None
 
@@ -359,7 +402,7 @@ class HiddenRows:
         left = f"; the row filters left out {self.filtered_out} of them, and the other {len(self.rows)}" \
             if self.filtered_out else "; they"
         return (f"{name} (sheet '{printable(self.sheet)}') hides {hidden} of its {self.of} rows of data {how} "
-                f"(data row{'s' if len(self.rows) != 1 else ''} {shown}){left} were analysed with the others, as the "
+                f"(row{'s' if len(self.rows) != 1 else ''} {shown}){left} were analysed with the others, as the "
                 f"file holds them.")
 
     def advice(self) -> str:
@@ -496,21 +539,64 @@ MAX_TEXT_BYTES = 1_000_000_000  # a delimited data file
 def decode_table_bytes(raw: bytes) -> str:
     """UTF-8 (with or without a byte-order mark), UTF-16, or else the Windows Western code page
     (cp1252, a superset of Latin-1 for printable characters) as spreadsheet programs save it."""
+    return decoded_table(raw)[0]
+
+
+def decoded_table(raw: bytes) -> tuple[str, TextEncoding]:
+    """The text of a delimited file and the encoding it was read in (see :func:`decode_table_bytes`)."""
     wide = utf16_text(raw)
     if wide is not None:
-        return wide
+        return wide, TextEncoding.UTF16
     try:
-        return raw.decode("utf-8-sig")
+        return raw.decode("utf-8-sig"), TextEncoding.UTF8
     except UnicodeDecodeError:
         pass
     try:
-        return raw.decode("cp1252")
+        return raw.decode("cp1252"), TextEncoding.WINDOWS_WESTERN
     except UnicodeDecodeError:
-        return raw.decode("latin-1")
+        return raw.decode("latin-1"), TextEncoding.LATIN1
 
 
-def _records(text: str, delimiter: str, limit: int | None = None):
-    """(line number, fields) of each record that is not blank; quoted fields may span lines."""
+class TextEncoding(Enum):
+    """How the bytes of a delimited file were read as text."""
+
+    UTF8 = "UTF-8"
+    UTF16 = "UTF-16"
+    WINDOWS_WESTERN = "Windows-1252 (Western European)"
+    LATIN1 = "Latin-1"
+
+
+@dataclass(frozen=True)
+class TextReading:
+    """How a delimited text file was read: its encoding, the separator between fields and the decimal mark, as
+    the reader found them (the data notes and the JSON ``data`` block say them)."""
+
+    encoding: TextEncoding
+    separator: str
+    decimal: str
+    names_line: int  # the line of the column names; rows are named by the line they start on
+
+    def plain(self) -> bool:
+        """UTF-8 text with commas between fields and decimal points, the reading every note would otherwise repeat
+        (the JSON ``data`` block records every reading)."""
+        return self.encoding is TextEncoding.UTF8 and self.separator == "," and self.decimal == "."
+
+    def words(self) -> str:
+        separator = {",": "commas", ";": "semicolons", "\t": "tabs", "|": "vertical bars ('|')"}[self.separator]
+        mark = "commas" if self.decimal == "," else "points"
+        return (f"read as {self.encoding.value} text, fields separated by {separator}, decimals written with {mark}; "
+                f"the column names are on line {self.names_line}, and rows are named by the line of the file they "
+                f"start on")
+
+    def to_dict(self) -> dict:
+        return {"encoding": self.encoding.value, "separator": self.separator, "decimal_mark": self.decimal,
+                "names_line": self.names_line}
+
+
+def _records(text: str, delimiter: str, limit: int | None = None, delimiters_only: bool = False):
+    """(line number, fields) of each record that is not blank; quoted fields may span lines.  ``delimiters_only``:
+    also the records of empty fields only (';;;'), which the table parser reads as rows of empty cells (it skips
+    lines that are empty or hold only spaces, as this does)."""
     reader = csv.reader(io.StringIO(text, newline=""), delimiter=delimiter)
     line = 1
     while True:
@@ -520,7 +606,7 @@ def _records(text: str, delimiter: str, limit: int | None = None):
             return
         except csv.Error as exc:
             raise DataError(f"line {reader.line_num}: {exc}") from None
-        if fields and any(f.strip() for f in fields):
+        if fields and (any(f.strip() for f in fields) or (delimiters_only and len(fields) > 1)):
             yield line, fields
             if limit is not None:
                 limit -= 1
@@ -551,17 +637,21 @@ def _delimiter(text: str) -> str:
     return best
 
 
-def _check_field_counts(text: str, delimiter: str, named: int, width: int, path: Path, header_line: int = 1) -> int:
+def _check_field_counts(text: str, delimiter: str, named: int, width: int, path: Path, header_line: int = 1,
+                        lines: list[int] | None = None) -> int:
     """Every data record must have a field for each of the ``named`` columns and no values beyond
     them.  Empty fields after them (a delimiter at the end of each line, as some programs write
     them; ``width`` fields in the header line) are accepted.  Returns the largest number of fields
-    in a record."""
+    in a record; ``lines`` receives the line on which each record the table parser reads as a row starts."""
     widest = width
-    records = _records(text, delimiter)
+    records = _records(text, delimiter, delimiters_only=True)  # (``text`` starts at the header line)
     next(records, None)  # the header
     for line, fields in records:
         n = len(fields)
-        if n == named or (n > named and not any(f.strip() for f in fields[named:])):
+        line += header_line - 1
+        if lines is not None:
+            lines.append(line)
+        if n == named or (n > named and not any(f.strip() for f in fields[named:])) or not any(f.strip() for f in fields):
             widest = max(widest, n)
             continue
         if named < n <= width:
@@ -583,21 +673,32 @@ def _shown_delimiter(d: str) -> str:
 
 
 def read_table(path: str | Path, notes: list[str] | None = None, row_names: list | None = None,
-               text_columns: tuple[str, ...] = ()) -> pd.DataFrame:
-    """A delimited text file as a DataFrame.  ``notes`` receives what was done to read it that the
-    report should mention (empty fields dropped at the ends of rows, a row-name column); ``row_names``
-    receives the row-name column's values (a Series of text) when the file has one."""
+               text_columns: tuple[str, ...] = (), items=None, names_row: int | None = None,
+               reading: list | None = None) -> pd.DataFrame:
+    """A delimited text file as a DataFrame, its rows indexed by their lines (data.moments.file_rows_index).
+    ``notes`` receives what was done to read it that the report should mention (empty fields dropped at the ends
+    of rows, a row-name column); ``row_names`` receives the row-name column's values (a Series of text) when the
+    file has one; ``names_row``: the line of the column names (the lines above it are not read); ``reading``
+    receives how the text was read (:class:`TextReading`)."""
     path = Path(path)
     raw = input_bytes(path, "data file", DataError, MAX_TEXT_BYTES)
     if not raw.strip():
         raise DataError(f"data file '{path}' is empty")
-    text = decode_table_bytes(raw)
+    text, encoding = decoded_table(raw)
     if "\x00" in text:
         raise DataError(f"data file '{path}' is not a text file (it contains NUL bytes); save it as CSV")
     delimiter = _delimiter(text)
     first = next(_records(text, delimiter, limit=1), None)
     if first is None:
         raise DataError(f"data file '{path}' is empty")
+    if names_row is not None:
+        lines_in_file = len(text_lines(normalise_line_ends(text)))
+        start = _names_row_start(names_row, lines_in_file, first[0] - 1, str(path), "line") + 1
+        first = next(((line, fields) for line, fields in _records(text, delimiter) if line >= start), None)
+        if first is None or first[0] != start:
+            raise DataError(f"{path}: line {start}, named by --names-row, is empty")
+        if notes is not None:
+            notes.append(_names_row_note(str(path), start, "line"))
     header_line, header = first
     header = [h.strip() for h in header]
     trailing = 0
@@ -609,9 +710,13 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         if not name and not (position == 1 and has_row_names):
             raise DataError(f"{path}: line {header_line}: column {position} of the header has no name")
     _check_duplicates(header, str(path))
-    widest = _check_field_counts(text, delimiter, len(header), len(header) + trailing, path, header_line)
+    lines: list[int] = []  # the line each row starts on: messages name rows by it
     body_start = _offset_of_line(text, header_line)
-    decimal = _decimal_mark(text, delimiter)
+    widest = _check_field_counts(text[body_start:], delimiter, len(header), len(header) + trailing, path, header_line,
+                                 lines)
+    decimal = _decimal_mark(text[body_start:], delimiter)
+    if reading is not None:
+        reading.append(TextReading(encoding, delimiter, decimal, header_line))
     try:
         frame = pd.read_csv(
             io.StringIO(text[body_start:]),
@@ -634,9 +739,11 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     frame.columns = header
     if len(frame) == 0:
         raise DataError(f"data file '{path}' has a header but no rows of data")
+    if len(lines) == len(frame):  # (always: the records counted as the table parser reads them)
+        frame.index = file_rows_index(lines)
     frame = blank_text_as_missing(frame, text_columns, MISSING_MARKERS, decimal == ",")  # 'NA ' is 'NA'
-    raw = _RawCells(text[body_start:], delimiter, widest, len(header))
-    _check_header_rows(frame, str(path), decimal == ",", text_columns)
+    raw = _RawCells(text[body_start:], delimiter, widest, len(header), frame.index)
+    _check_header_rows(frame, str(path), decimal == ",", text_columns, items, header_line)
     if decimal == ",":
         _check_dotted_thousands(frame, raw, header, path, notes)
         _check_decimal_points(frame, str(path), text_columns)
@@ -654,6 +761,46 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     return frame
 
 
+def _names_row_start(names_row, rows: int, first: int, where: str, word: str) -> int:
+    """The 0-based position of the row ``--names-row`` names (``rows``: how many the file has; ``first``: the
+    first that is not empty), or an error when it cannot apply."""
+    if isinstance(names_row, bool) or not isinstance(names_row, (int, np.integer)) or names_row < 1:
+        raise DataError(f"the row of column names (--names-row) must be a {word} number (1 or more), not "
+                        f"{printable(repr(names_row))[:40]}")
+    if names_row > rows:
+        raise DataError(f"{where} has {rows} {word}s, so {word} {names_row} (--names-row) cannot hold the column names")
+    if names_row - 1 < first:
+        raise DataError(f"{where}: {word} {names_row} (--names-row) is empty; the first {word} with values is "
+                        f"{first + 1}")
+    return int(names_row) - 1
+
+
+def _names_row_note(where: str, names_row: int, word: str) -> str:
+    """The note of a table whose column names were read from a later row (--names-row)."""
+    above = "" if names_row == 1 else (f"; {word} 1 above it was not read" if names_row == 2 else
+                                        f"; {word}s 1-{names_row - 1} above it were not read")
+    return f"{where}: the column names were read from {word} {names_row}, as --names-row asks{above}"
+
+
+def drop_blank_rows(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, tuple[str, ...]]:
+    """``frame`` without the rows that hold no value in any column (blank rows among the data of a sheet or a
+    text file, a data frame's empty rows), and the note naming them: the one rule of every reader and of data
+    frames, so that a file and the same table read by pandas count the same rows.  A row with any value (an id,
+    a footer such as 'Total responses: 1204') is kept; the analysis names it if it answers no model variable."""
+    if frame.shape[1] == 0 or len(frame) == 0:
+        return frame, ()
+    blank = frame.isna().all(axis=1).to_numpy()
+    if not blank.any():
+        return frame, ()
+    if blank.all():
+        return frame, ()  # the readers' own message: a header but no rows of data
+    numbers = row_numbers(frame)[blank]
+    one = len(numbers) == 1
+    note = (f"{where}: {len(numbers)} {'row' if one else 'rows'} with no value in any column "
+            f"{'was' if one else 'were'} skipped ({rows_listed(numbers)})")
+    return frame[~blank], (note,)
+
+
 def _as_numbers(column: pd.Series, decimal_comma: bool) -> pd.Series:
     """The cells of a column as numbers (NaN where a cell is missing or not a number), a decimal comma read as
     the point when ``decimal_comma``."""
@@ -668,10 +815,13 @@ def _as_numbers(column: pd.Series, decimal_comma: bool) -> pd.Series:
 MAX_HEADER_ROWS = 3  # further header rows a survey platform writes under the column names (question texts, ids)
 
 
-def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, text_columns=()) -> None:
+def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, text_columns=(), items=None,
+                       header_row: int | None = None) -> None:
     """Rows right under the header that hold text in every column holding numbers below them: survey platforms
     export the question texts and import ids as a second and third header row.  Read as answers they make every
-    item column text; the remedy is to delete them, not to recode the answers."""
+    item column text; the remedy is to delete them, not to recode the answers.  When one of them holds the model's
+    names (``items``: question texts in the header row, item codes under them), the message says so: the names
+    are to be read from that row, not deleted."""
     if len(frame) <= MAX_HEADER_ROWS + 1:
         return
 
@@ -698,8 +848,21 @@ def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, tex
     if len(leads) < 2 or len({lead for lead, _ in leads}) != 1:
         return
     lead, position = leads[0]
+    numbers = row_numbers(frame)[:lead]
+    if items:
+        wanted = {str(x) for x in items}
+        for k in range(lead):
+            cells = [str(v).strip() for v in frame.iloc[k].tolist() if isinstance(v, str)]
+            hits = [c for c in cells if c in wanted]
+            if len(hits) >= min(2, len(wanted)):
+                shown = ", ".join(f"'{printable(h)}'" for h in hits[:3]) + (", ..." if len(hits) > 3 else "")
+                above = f"the column names of row {header_row}" if header_row is not None else "the column names"
+                raise DataError(f"{where}: row {numbers[k]} holds the model's variable names ({shown}) under "
+                                f"{above}, as survey platforms export question texts above their codes; read the "
+                                f"column names from that row with --names-row {numbers[k]} (the rows above it are then "
+                                f"not read)")
     example = printable(str(frame.iloc[0, position]).strip())[:60]
-    rows = "data row 1" if lead == 1 else f"data rows 1-{lead}"
+    rows = f"row {numbers[0]}" if lead == 1 else f"rows {numbers[0]}-{numbers[-1]}"
     look = "looks like a further header row" if lead == 1 else "look like further header rows"
     raise DataError(f"{where}: {rows} under the column names {look} (text such as '{example}' in every column "
                     f"that holds numbers below {'it' if lead == 1 else 'them'}), as survey platforms export question "
@@ -728,10 +891,10 @@ def _check_decimal_points(frame: pd.DataFrame, where: str, text_columns=()) -> N
         if not commas.any() or not points.any() or not (commas | points | whole).all():
             continue
         first = cells.index[points.to_numpy().argmax()]
-        row = int(frame.index.get_loc(first)) + 1
+        row = row_numbers(cells)[points.to_numpy().argmax()]
         example = cells[commas].iloc[0]
         raise DataError(f"{where}: column '{printable(frame.columns[position])}' holds "
-                        f"'{printable(cells[first])}' in data row {row}, written with a '.', while the file writes "
+                        f"'{printable(cells[first])}' in row {row}, written with a '.', while the file writes "
                         f"decimals with commas (such as '{printable(example)}'); write the decimals of that row with "
                         f"commas, as the others are (and numbers without thousands separators)")
 
@@ -800,8 +963,9 @@ def _say_markers(found: dict[str, int], where, notes: list[str] | None) -> None:
 class _RawCells:
     """The body of a delimited file read again as text, cell by cell as written, only when a check needs it."""
 
-    def __init__(self, body: str, delimiter: str, widest: int, width: int):
+    def __init__(self, body: str, delimiter: str, widest: int, width: int, index: pd.Index | None = None):
         self.body, self._delimiter, self._widest, self._width = body, delimiter, widest, width
+        self._index = index  # the rows' index as the table read has it (their lines)
         self._frame: pd.DataFrame | None = None
 
     def frame(self) -> pd.DataFrame:
@@ -809,6 +973,8 @@ class _RawCells:
             self._frame = pd.read_csv(io.StringIO(self.body), sep=self._delimiter, header=0,
                                       names=list(range(self._widest)), usecols=list(range(self._width)),
                                       index_col=False, dtype=str, keep_default_na=False)
+            if self._index is not None and len(self._index) == len(self._frame):
+                self._frame.index = self._index
         return self._frame
 
 
@@ -860,12 +1026,13 @@ def _check_dotted_thousands(frame: pd.DataFrame, raw: _RawCells, header: list[st
         if not dotted.any() or not cells[dotted].str.fullmatch(r"[+-]?\d+\.\d{3}").all():
             continue
         first = int(dotted.to_numpy().argmax())
-        example = f"'{printable(cells.iloc[first])}' in data row {first + 1}"
+        rows = row_numbers(cells)
+        example = f"'{printable(cells.iloc[first])}' in row {rows[first]}"
         whole = cells.str.fullmatch(r"[+-]?\d+") & (pd.to_numeric(cells.where(~dotted), errors="coerce").abs() >= 100)
         if whole.any():
             big = int(whole.to_numpy().argmax())
             raise DataError(f"{path}: column '{printable(name)}' holds {example} beside whole numbers such as "
-                            f"'{printable(cells.iloc[big])}' (data row {big + 1}); in a file with decimal commas the '.' "
+                            f"'{printable(cells.iloc[big])}' (row {rows[big]}); in a file with decimal commas the '.' "
                             f"may separate thousands ({cells.iloc[first].replace('.', '')}) or mark decimals, so the "
                             f"values cannot be read; write the numbers without thousands separators")
         if commas and notes is not None:

@@ -2,7 +2,7 @@
 
 An id column is never analysed: it must exist, and it may not be a model variable or the group
 column.  Ids are kept as text, one per row of the data as read (before row filters), so outputs
-can name each row by its id beside its data-row number.
+can name each row by its id beside its row number.
 """
 
 from __future__ import annotations

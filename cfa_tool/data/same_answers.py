@@ -22,7 +22,7 @@ MIN_ANSWERED_SHARE = 0.5
 
 @dataclass(frozen=True)
 class SameAnswerRows:
-    """The rows found: their data-row numbers, the one answer each gave, how many reverse-keyed items each answered,
+    """The rows found: their row numbers, the one answer each gave, how many reverse-keyed items each answered,
     whether that answer contradicts the reversal (False for the scale's middle answer, which its reversal leaves
     unchanged: minimum + maximum - x = x), and the items judged."""
 
@@ -36,7 +36,7 @@ class SameAnswerRows:
 
 def same_answer_rows(values: np.ndarray, row_numbers: np.ndarray, reversed_items: np.ndarray,
                      middles: np.ndarray | None = None) -> SameAnswerRows | None:
-    """The rows of ``values`` (rows x items, NaN where not answered; ``row_numbers`` their data-row numbers) that
+    """The rows of ``values`` (rows x items, NaN where not answered; ``row_numbers`` their row numbers) that
     answered every item they answered with one value, reverse-keyed items (``reversed_items``, a mask of the
     columns) among them; None when no row did or no item is reverse-keyed.  ``middles``: for each column, the answer
     its reversal leaves unchanged ((minimum + maximum) / 2 of a reverse-keyed item's scale; NaN otherwise): a row

@@ -297,7 +297,7 @@ def design_columns(weights: str | None = None, cluster: str | None = None, strat
 def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: tuple[str, ...], group: str | None,
                  source: str) -> tuple[pd.DataFrame, list[str]]:
     """The rows to analyse (rows of weight zero left out, with a note) after every check of the design
-    columns; each problem is an error naming the column and a data row."""
+    columns; each problem is an error naming the column and a row."""
     names = [n for _, n in columns.names]
     if len(set(names)) != len(names):
         twice = next(n for n in names if names.count(n) > 1)
@@ -334,7 +334,7 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
         if name is not None:
             absent = frame[name].isna().to_numpy()
             if absent.any():
-                raise DataError(f"{source}: column '{printable(name)}', data row {rows[np.argmax(absent)]}: no {what} "
+                raise DataError(f"{source}: column '{printable(name)}', row {rows[np.argmax(absent)]}: no {what} "
                                 f"given; every row needs one (a row filter, {Option.KEEP}, can leave such rows out)")
     if columns.cluster is not None and columns.strata is not None:
         pairs = pd.DataFrame({columns.cluster: _labels(frame[columns.cluster]),
@@ -439,7 +439,7 @@ def _data_rows(frame: pd.DataFrame) -> np.ndarray:
 
 def _weights(frame: pd.DataFrame, columns: DesignColumns, source: str, rows: np.ndarray) -> np.ndarray:
     name = columns.weights
-    where = f"{source}: weights column '{printable(name)}', data row"
+    where = f"{source}: weights column '{printable(name)}', row"
     column = frame[name]
     truth = (np.ones(len(column), dtype=bool) if column.dtype.kind == "b" or str(column.dtype) == "boolean"
              else column.map(lambda v: isinstance(v, (bool, np.bool_))).to_numpy(dtype=bool))

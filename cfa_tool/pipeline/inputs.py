@@ -21,7 +21,7 @@ from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
 from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
-from cfa_tool.data.readers import HiddenRows, LoadedData, blank_text_as_missing, read_data
+from cfa_tool.data.readers import HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows, read_data
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
                                          refuse_shared_clusters)
@@ -66,13 +66,14 @@ def load_spec(model: str | os.PathLike | Spec) -> Spec:
 
 
 def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), keep=(), group: str | None = None,
-                       id_column: str | None = None) -> None:
+                       id_column: str | None = None, names_row: int | None = None) -> None:
     """Options about rows and columns of raw data cannot apply to summary statistics: each is an
     error rather than silently ignored."""
     given = [f"{name} ({option})" for name, option, value in (
         ("a sheet", Option.SHEET, sheet), ("missing-value codes", Option.MISSING_CODES, missing_codes),
         ("row filters", Option.KEEP, keep), ("groups", Option.GROUP_COLUMN, group),
-        ("an id column", Option.ID_COLUMN, id_column)) if value]
+        ("an id column", Option.ID_COLUMN, id_column), ("a row of column names", Option.NAMES_ROW, names_row))
+        if value]
     if given:
         raise OptionError(f"{source} holds summary statistics, not rows of data, so {given[0]} cannot apply; "
                           f"remove the option or give the raw data")
@@ -111,7 +112,8 @@ def of_summary_statistics(result, moments, notes) -> object:
 
 
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-              text_columns: tuple[str, ...] = (), items=None, listed=None, filters=()) -> LoadedData:
+              text_columns: tuple[str, ...] = (), items=None, listed=None, filters=(),
+              names_row: int | None = None) -> LoadedData:
     """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to;
     ``filters``: the row filters applied next, which the notes do not suggest again)."""
     missing_codes = missing_codes_option(missing_codes)
@@ -119,15 +121,19 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         if sheet is not None:
             raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
                               f"frame; leave the sheet out")
+        if names_row is not None:
+            raise OptionError(f"a row of column names ({printable(repr(names_row))[:20]}) is read from a file, and the "
+                              f"data are a data frame, whose columns have their names; leave it out")
         frame = blank_text_as_missing(data)  # '' and '  ' are no answer, as an empty cell of a file is
+        frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
         frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items, filters)  # in the items only
-        return LoadedData(frame, "<data frame>", notes=notes)
+        return LoadedData(frame, "<data frame>", notes=blank + tuple(notes))
     if isinstance(data, (str, Path)):
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items,
-                         listed=listed, filters=filters)
+                         listed=listed, filters=filters, names_row=names_row)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -150,24 +156,25 @@ def keep_option(keep) -> list[str]:
 
 
 def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: tuple[str, ...] = (),
-                  items=None, filters=()) -> LoadedData:
+                  items=None, filters=(), names_row: int | None = None) -> LoadedData:
     """The data read for the model ``spec``, as every command reads them: a missing-value code on a declared scale
     refused, no-answer words and labels read as missing in ``items`` only (None: the model's items), and the words
     its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next."""
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
     listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
     return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed,
-                     filters)
+                     filters, names_row)
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
-                           text_columns: tuple[str, ...] = (), items=None) -> tuple[Spec, LoadedData, list[str]]:
+                           text_columns: tuple[str, ...] = (), items=None,
+                           names_row: int | None = None) -> tuple[Spec, LoadedData, list[str]]:
     """The model and the data read for it; no-answer words and labels are read as missing in ``items`` only (None:
     the model's items), never in a group, id or design column."""
     keep = keep_option(keep)
     spec = load_spec(model)
     filters = [parse_filter(k) for k in keep]
-    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters)
+    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row)
     frame = loaded.frame
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
     columns = [c if type(c) is str else str(c) for c in labels]
@@ -272,8 +279,8 @@ FIT_KEYWORDS = ("model", "data", "group", "reference_group", "sheet", "missing_c
 
 
 def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None, *, group: str | None = None,
-        reference_group: str | None = None, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
-        keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
+        reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
+        missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
         variables: list[str] | None = None, matrix: str = "covariance", sds=None, divisor: str = "n-1",
         ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, id_column: str | None = None,
         weights: str | None = None, cluster: str | None = None, strata: str | None = None,
@@ -282,7 +289,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
 
     ``model``: model text, a path to a model file, or a parsed Spec.
     ``data``: a DataFrame or a path to a data file (CSV/TSV, .xlsx, .sav/.por, .dta, or a
-    ``.stats`` summary-statistics file); ``sheet`` picks an Excel sheet; ``missing_codes``
+    ``.stats`` summary-statistics file); ``sheet`` picks an Excel sheet; ``names_row``: the row (of a sheet) or
+    line (of a text file) that holds the column names, the rows above it not read; ``missing_codes``
     are values that mean 'no answer'; ``keep`` are row filters such as 'district = north'.
     Instead of data: ``covariance`` (a matrix, or a DataFrame with variable names), ``n_obs``
     and optionally ``means``, ``variables``, ``matrix='correlation'`` with ``sds``, and
@@ -293,7 +301,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     the model): thresholds and polychoric correlations, fitted by ``ordinal_estimator``
     ('diagonally-weighted' or 'unweighted' least squares) with robust standard errors.
     ``id_column``: a column that names each row (never analysed; not a model variable or the group
-    column): the case diagnostics name their rows by it beside the data-row number; without it, a
+    column): the case diagnostics name their rows by it beside the row number; without it, a
     row-name column of the file (a first column without a name in the header) does.
     ``weights``: a column of sampling weights (rescaled to sum to the number of rows; pseudo-maximum
     likelihood, Muthén & Satorra 1995, and the weighted full-information likelihood, Asparouhov 2005),
@@ -323,7 +331,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             raise OptionError(f"{given[0]} goes with a covariance matrix (covariance=...), and none is given")
     if covariance is not None or summary_source(data):
         refuse_row_options("a covariance matrix" if covariance is not None else f"'{data}'", sheet, missing_codes, keep, group,
-                           id_column)
+                           id_column, names_row)
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         if ordinal or ordinal_estimator is not None:
@@ -351,7 +359,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
-                                                 (id_column,) if isinstance(id_column, str) else ())
+                                                 (id_column,) if isinstance(id_column, str) else (), names_row=names_row)
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:
@@ -359,7 +367,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     loaded = analysed_odd_values(loaded, spec, group)
     with odd_values_named(loaded):
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
-                                       ordinal_estimator, design), ids_by_row_number(ids, frame))
+                                       ordinal_estimator, design, ids), ids_by_row_number(ids, frame))
     reference_group_applies(result, reference_group)
     result = with_missing_reading(with_odd_values(result, loaded, group, spec, design, ids_by_row_number(ids, frame)),
                                   loaded, missing_codes)
@@ -392,8 +400,10 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
     no answer (``loaded.non_answers``), which the methods paragraph names; and the values of its items that look like
     no answers but were analysed as answers (``loaded.odd_values``), and the row filters that chose its rows
-    (:func:`with_row_filters`), which it names too."""
+    (:func:`with_row_filters`), which it names too; and how a text file was read (``loaded.reading``)."""
     result = with_row_filters(result, loaded)
+    if loaded.reading is not None:
+        result = replace(result, data=replace(result.data, reading=loaded.reading))
     codes = missing_codes_option(missing_codes)
     items = set(result.observed)
     marked = tuple(f for f in loaded.non_answers if f.column in items)
@@ -537,7 +547,7 @@ SAME_ANSWER_ROWS_SHOWN = 10  # rows a caution about same-answer rows names befor
 def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only: bool = False) -> tuple:
     """A caution naming the rows of ``frame`` (the rows analysed) that gave one answer to every item, the items of
     the model's 'reversed' statement included (data.same_answers: careless responding, Johnson 2005; Curran 2016),
-    by data-row number and id (``ids``: data-row number -> id); () when the model declares no reversed items or no
+    by row number and id (``ids``: row number -> id); () when the model declares no reversed items or no
     row did.  The rows stay in the analysis (``scored_only``: rows scored with an earlier fit, which they did not
     enter: they are scored like every row)."""
     if not spec.reversed:
@@ -556,7 +566,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
         return ()
 
     def listed(which: list[int], skipped: bool = False) -> str:
-        """The rows by data-row number (and id); ``skipped``: say of a row that left reverse-worded items out how
+        """The rows by row number (and id); ``skipped``: say of a row that left reverse-worded items out how
         many of them it answered."""
         def one_row(k: int) -> str:
             r = found.rows[k]
@@ -566,7 +576,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
             return f"{r} ({'; '.join(said)})" if said else str(r)
         shown = [one_row(k) for k in which[:SAME_ANSWER_ROWS_SHOWN]]
         more = len(which) - len(shown)
-        return f"data row{'' if len(which) == 1 else 's'} {', '.join(shown)}" + (f" and {more} more" if more else "")
+        return f"row{'' if len(which) == 1 else 's'} {', '.join(shown)}" + (f" and {more} more" if more else "")
 
     def gave(which: list[int]) -> str:
         answers = sorted({found.answers[k] for k in which})
@@ -768,10 +778,12 @@ def with_rows_read(result: FitResult, loaded: LoadedData) -> FitResult:
 
 
 def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
-             design: DesignColumns | None = None) -> FitResult:
+             design: DesignColumns | None = None, ids: pd.Series | None = None) -> FitResult:
     """The fit of rows of raw data (after reading, filters and model checks), its data summary naming the
-    row filters and the rows the file held before them."""
-    result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design)
+    row filters and the rows the file held before them (``ids``: each row's id, data.row_ids, which name the rows
+    left out)."""
+    result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design,
+                            ids)
     if group is not None or design is not None:
         result = with_rows_read(result, loaded)
     return with_row_filters(result, loaded)
@@ -787,7 +799,7 @@ def with_row_filters(result, loaded: LoadedData):
 
 
 def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
-                   design: DesignColumns | None = None) -> FitResult:
+                   design: DesignColumns | None = None, ids: pd.Series | None = None) -> FitResult:
     frame, source = loaded.frame, loaded.source
     ordinal_items = ordinal_items_of(spec, ordinal)
     spec = with_ordinal_levels(spec, ordinal_items)
@@ -820,6 +832,9 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
         groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design,
                                           values)
         notes += group_notes
+        if ids is not None:  # the rows that answer nothing named by their ids too (a footer: its text)
+            groups = [(label, replace(m, unanswered_ids=tuple(ids.get(int(r) - 1) for r in m.unanswered_rows)))
+                      if m.unanswered_rows is not None and len(m.unanswered_rows) else (label, m) for label, m in groups]
         result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     if design is not None:
         result = with_design(result, design_summary(frame, design, [m for _, m in groups]))
@@ -936,6 +951,8 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
         return replace(fit_options, missing=MissingData.FULL_INFORMATION), []
     robust = fit_options.test is FitTest.ROBUST
     gap = rows_with_gaps(frame, names, values)
+    if gap.any():  # rows that answer nothing are left out and said apart, as the check counts them
+        gap &= ~(np.isnan(values).all(axis=1) if values is not None else frame[list(names)].isna().all(axis=1).to_numpy())
     rows = len(frame)
     if group is not None and group in frame.columns:
         labelled = frame[group].notna().to_numpy()
@@ -1180,8 +1197,8 @@ def make_options(options: dict, own: tuple[str, ...] = ()) -> FitOptions:
 
 
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
-          sheet: str | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
-          reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
+          sheet: str | None = None, names_row: int | None = None, missing_codes: tuple[float, ...] = (),
+          keep: tuple[str, ...] | list[str] = (), reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
           strata: str | None = None, weight_kind: str | None = None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
     are complete, how many have gaps (kept by default) and each item's
@@ -1194,7 +1211,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     from cfa_tool.model.parameters import build_parameter_table
 
     opt.group_column(group)
-    read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep}
+    read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep, "names_row": names_row}
     design = design_columns(weights, cluster, strata, weight_kind)
     if summary_source(data):
         refuse_row_options(f"'{data}'", group=group, **read_options)
@@ -1243,7 +1260,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     odd_rows = {row for odd in loaded.odd_values for row in odd.rows}
     odd_complete = int(np.isin(row_numbers(answered)[every_item], list(odd_rows)).sum()) if odd_rows else 0
     complete = int(every_item.sum()) - odd_complete
-    empty = int((~answered.any(axis=1)).sum())
+    unanswered = ~answered.any(axis=1).to_numpy()
+    empty = int(unanswered.sum())
     coverage = {name: float(v) for name, v in answered.mean(axis=0).items()} if len(answered) else {}
     counted = None
     if design is not None and design.kind is WeightKind.FREQUENCY:  # the rows as the fit counts them (its N)
@@ -1262,5 +1280,6 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,
                        group_rows=tuple(m.n_obs for _, m in groups) if labels else (),
                        group_parameters=tuple(group_parameter_counts(table)) if labels and not ordinal_items else (),
-                       zero_weight=len(loaded.frame) - len(frame))
+                       zero_weight=len(loaded.frame) - len(frame),
+                       empty_rows=tuple(int(r) for r in row_numbers(answered)[unanswered]))
 

@@ -11,6 +11,7 @@ import numpy as np
 from cfa_tool.assessment.fit_indices import FitIndices, IndicesToRead
 from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
+from cfa_tool.data.kept_rows import rows_listed
 from cfa_tool.errors import EstimationError
 from cfa_tool.language.names import names_text
 from cfa_tool.method import FitMethod
@@ -108,6 +109,8 @@ class CheckResult(Presentable):
     group_parameters: tuple[int, ...] = ()
     #: rows of weight 0 under sampling or frequency weights: read, and left out before every count above
     zero_weight: int = 0
+    #: the row numbers of the rows that answer no model variable (``empty``), as the file numbers them
+    empty_rows: tuple[int, ...] = ()
 
     @property
     def admissible(self) -> bool:
@@ -140,7 +143,8 @@ class CheckResult(Presentable):
                f"above, are answers)" if self.complete_by_odd_values else "")
         lines.append(f"Rows: {read} {self.complete} complete{odd}, {self.with_gaps} with missing answers "
                      f"({'used through pairwise present rows for ordinal items' if self.ordinal else 'used by full-information ML'}, "
-                     f"the default), {self.empty} with no answer to any model variable.")
+                     f"the default), {self.empty} with no answer to any model variable"
+                     + (f" ({rows_listed(self.empty_rows)})." if self.empty_rows else "."))
         if self.counted is not None:
             read, complete, gaps, empty = (f"{v:,.10g}" for v in self.counted)
             lines.append(f"Rows counted by their frequency weights, as the fit counts them: {read} read, {complete} "
@@ -166,6 +170,7 @@ class CheckResult(Presentable):
         return {"valid": True, "source": self.source, "factors": list(self.spec.factor_names),
                 "indicators": list(self.spec.observed_names), "rows": self.rows, "complete_rows": self.complete,
                 "rows_with_gaps": self.with_gaps, "rows_without_answers": self.empty,
+                "rows_without_answers_at": list(self.empty_rows),
                 "complete_rows_by_values_not_answers": self.complete_by_odd_values, "coverage": dict(self.coverage),
                 "groups": list(self.groups) if self.groups else None,
                 "group_rows": dict(zip(self.groups, self.group_rows)) if self.groups and self.group_rows else None,
@@ -220,6 +225,8 @@ class DataSummary:
     # values of the model's items that look like no answers (data.odd_values.OddValues: a missing-value code, a totals
     # or means row) but were analysed as answers, as the file holds them: the methods paragraph says so
     odd_values: tuple = ()
+    # how a delimited text file was read (data.readers.TextReading: encoding, separator, decimal mark); None otherwise
+    reading: object | None = None
 
     @property
     def pair_range(self) -> tuple[int, int] | None:
@@ -258,6 +265,8 @@ class DataSummary:
             out["not_given"] = [g.value for g in self.not_given]
         if self.missing_codes:
             out["missing_codes"] = list(self.missing_codes)
+        if self.reading is not None:
+            out["reading"] = self.reading.to_dict()
         if self.analysed is not None:
             out["matrix_analysed"] = self.analysed.name.lower()
         if self.without_group:

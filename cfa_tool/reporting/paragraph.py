@@ -377,7 +377,8 @@ def _sample_phrase(result) -> str:
     dropped = data.rows_dropped - without_group
     if dropped:
         if full_information or result.method.missing is MissingData.PAIRWISE:
-            text += f"; {dropped} of {data.rows_read} rows answered no model variable and were left out"
+            text += (f"; {dropped} of {data.rows_read} rows answered no model variable and "
+                     f"{'was' if dropped == 1 else 'were'} left out")
         else:
             text += f"; {dropped} of {data.rows_read} rows with missing answers were excluded listwise"
     if without_group:

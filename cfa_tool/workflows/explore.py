@@ -59,7 +59,7 @@ class SplitHalves:
     """The two random halves of an explore-then-confirm run."""
 
     seed: int
-    exploration_rows: tuple[int, ...]  # data-row numbers (1 = first row after the header)
+    exploration_rows: tuple[int, ...]  # the rows' numbers as the file numbers them (data.moments.row_numbers)
     confirmation_rows: tuple[int, ...]
     confirmation: FitResult | None  # the draft model fitted on the confirmation half (None: no usable draft)
     note: str | None = None  # why there is no confirmation fit
@@ -331,7 +331,7 @@ def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: t
     said = f" Left out as dates or times: {listed(dates)}." if dates else ""
     if text and codings:
         general = next((c for c in codings if not c.items), None)
-        unlisted = [printable(c) + (f" ('{printable(cell)}' in data row {row})" if cell is not None else "")
+        unlisted = [printable(c) + (f" ('{printable(cell)}' in row {row})" if cell is not None else "")
                     for c in text[:10] for cell, row in [_first_unlisted(frame[c], general)]]
         said += (f" Left out as text holding none of the answers file's words (--answers): "
                  + ", ".join(unlisted) + (f" and {len(text) - 10} more" if len(text) > 10 else "") + ".")
@@ -478,7 +478,7 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
                 continue
             shown = printable(cell.strip() if len(cell.strip()) <= 40 else cell.strip()[:37] + "...")
             statement = suggested_statement(values)
-            where = f"{source}: column '{printable(name)}' holds words ('{shown}' in data row {row}), and explore analyses numbers"
+            where = f"{source}: column '{printable(name)}' holds words ('{shown}' in row {row}), and explore analyses numbers"
             if codings:
                 raise DataError(f"{where}: add the column to an 'answers' statement of the answers file (--answers) "
                                 f"with 'for', or take it out of --items")
@@ -551,8 +551,9 @@ def _factor_choice(factors) -> int | None:
 
 def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = RotationMethod.QUARTIMIN,
             extraction: str | ExtractionMethod = ExtractionMethod.MAXIMUM_LIKELIHOOD, ordinal=None,
-            split: int | None = None, sheet: str | None = None, missing_codes=(), keep=(), replications: int = 100,
-            seed: int = 0, threshold: float = 0.30, target=None, answers=None) -> ExploreResult:
+            split: int | None = None, sheet: str | None = None, names_row: int | None = None, missing_codes=(),
+            keep=(), replications: int = 100, seed: int = 0, threshold: float = 0.30, target=None,
+            answers=None) -> ExploreResult:
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
     ``items``: column names, or text 'a, b, c' with 'a..b' for a span of columns (default: every column that
@@ -579,7 +580,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     # a first reading names the columns and chooses the default items; the data are then read for those items as
     # fit reads them for a model's (pipeline.inputs.read_inputs_with_notes): --missing-codes and words or labels
     # that say no answer in the item columns only, the answers file's words coded, row filters, odd values
-    scan = api.load_data(data, sheet)
+    scan = api.load_data(data, sheet, names_row=names_row)
     source = scan.source
     columns = [str(c) for c in scan.frame.columns]
     if len(set(columns)) != len(columns):
@@ -593,7 +594,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     spec = _explored_spec(chosen, codings, answers, worded if by_default else None)
     if not by_default:
         _refuse_text_items(scan.frame.set_axis(columns, axis=1), chosen, source, codings)
-    spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, missing_codes, api.keep_option(keep))
+    spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, missing_codes, api.keep_option(keep),
+                                                     names_row=names_row)
     frame = loaded.frame
     rows_read = len(loaded.read_frame) if loaded.read_frame is not None else len(frame)
     empty = next((c for c in chosen if not frame[c].notna().any()), None)
@@ -730,7 +732,7 @@ def _confirm(exploration: Exploration, halves, seed: int, source: str, statement
         return SplitHalves(seed, first, second, None, "the draft model has no factor with enough items, so there is "
                                                       "nothing to confirm")
     try:
-        fitted = api.fit(exploration.draft.text, confirming)  # its index keeps the data-row numbers
+        fitted = api.fit(exploration.draft.text, confirming)  # its index keeps the row numbers
     except CfaError as exc:
         return SplitHalves(seed, first, second, None, f"the draft model could not be fitted on the confirmation half: "
                                                       f"{exc}")

@@ -17,6 +17,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
 from cfa_tool.errors import DataError, EstimationError, OptionError, printable
@@ -260,7 +261,7 @@ SCORES_KEYWORDS = ("model", "data", "methods", "standard_errors", "id_column", "
 
 
 def scores(model, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
-           group: str | None = None, reference_group: str | None = None, sheet: str | None = None,
+           group: str | None = None, reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
            missing_codes=(), keep=(), ordinal=None, ordinal_estimator: str | None = None, weights: str | None = None,
            cluster: str | None = None, strata: str | None = None, weight_kind: str | None = None,
            **options) -> ScoreResult:
@@ -292,7 +293,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         raise OptionError("standard_errors must be True or False")
     fit_options = api.make_options(options, SCORES_KEYWORDS)
     spec, loaded, notes = api.read_inputs_with_notes(model, data, sheet, missing_codes, keep,
-                                                     (id_column,) if isinstance(id_column, str) else ())
+                                                     (id_column,) if isinstance(id_column, str) else (),
+                                                     names_row=names_row)
     api.without_exploratory_blocks(spec, "scores", "its factors' scores would be those of the unrotated block")
     frame, source = loaded.frame, loaded.source
     read_frame = loaded.read_frame if loaded.read_frame is not None else frame
@@ -440,7 +442,7 @@ def refuse_unknown_scale(data, what: str) -> None:
 
 
 def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
-                   sheet: str | None = None, missing_codes=(), keep=()) -> ScoreResult:
+                   sheet: str | None = None, missing_codes=(), keep=(), names_row: int | None = None) -> ScoreResult:
     """Scores of the rows of ``data`` with the parameters of an earlier fit (``result``): a scale calibrated in one
     sample scores another.  With groups, ``data`` needs the fit's group column, and each row is scored with its
     group's parameters (a row of a group the fit does not have gets no scores).  The quality figures are those of
@@ -456,11 +458,11 @@ def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bo
     chosen = _saved_methods(methods, result.method.ordinal, standard_errors)
     models, labels = models_of_fit(result)
     return _score_other_data(result, _spec_of(result), models, labels, data, chosen, standard_errors, id_column, sheet,
-                             missing_codes, keep)
+                             missing_codes, keep, names_row)
 
 
 def _score_other_data(result, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
-                      keep) -> ScoreResult:
+                      keep, names_row=None) -> ScoreResult:
     """Rows of ``data`` scored with the given models (one per group of the earlier fit ``result``)."""
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
@@ -468,7 +470,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     given = api.missing_codes_option(missing_codes)
     carried = tuple(c for c in result.data.missing_codes if c not in given)  # the earlier fit's, read so here too
     spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + carried, keep,
-                                                     (id_column,) if isinstance(id_column, str) else ())
+                                                     (id_column,) if isinstance(id_column, str) else (),
+                                                     names_row=names_row)
     frame, source = loaded.frame, loaded.source
     read_frame = loaded.read_frame if loaded.read_frame is not None else frame
     if not len(read_frame):
@@ -508,7 +511,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     errors = {meth: np.full((n, m), np.nan) for meth in chosen}
     position = pd.Series(np.arange(n), index=read_frame.index)
     if ordinal:
-        _check_categories(models[0], rows, position.loc[frame.index].to_numpy(), source)
+        _check_categories(models[0], rows, row_numbers(frame), source)
     counts: dict = {}
     for model_g, label in zip(models, labels):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(frame))
@@ -572,8 +575,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
 
 def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str) -> None:
     """Every answer to an ordinal item must be one of the categories the earlier fit estimated thresholds for: an
-    error naming the item, the data row and the value otherwise (``data_rows``: each row's place in the file,
-    from 0)."""
+    error naming the item, the row and the value otherwise (``data_rows``: each row's number in the file,
+    data.moments.row_numbers)."""
     for j, cats in enumerate(model.categories):
         if not cats:
             continue
@@ -582,7 +585,7 @@ def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: st
         if unknown.any():
             k = int(np.flatnonzero(unknown)[0])
             raise DataError(f"{source}: ordinal item '{printable(model.base.items[j])}' has the answer {column[k]:g} in "
-                            f"data row {int(data_rows[k]) + 1}, which is not one of the categories the earlier fit "
+                            f"row {int(data_rows[k])}, which is not one of the categories the earlier fit "
                             f"estimated thresholds for ({', '.join(f'{v:g}' for v in cats)}); recode it or leave it out")
 
 
@@ -789,7 +792,8 @@ def ordinal_models_of_estimates(spec, rows, data, labels: tuple[str, ...] | None
 
 
 def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_errors: bool = False,
-                         id_column: str | None = None, sheet: str | None = None, missing_codes=(), keep=()) -> ScoreResult:
+                         id_column: str | None = None, sheet: str | None = None, missing_codes=(), keep=(),
+                         names_row: int | None = None) -> ScoreResult:
     """Scores of the rows of ``data`` with the parameters of a fit saved as JSON (``fit --json``) of ``model``."""
     from cfa_tool.assessment.admissibility import refuse_inadmissible_saved_fit
     from cfa_tool.data.answer_words import with_saved_coding
@@ -802,7 +806,7 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")), standard_errors)
     models, labels = models_of_saved_fit(spec, saved)
     return _score_other_data(saved, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
-                             keep)
+                             keep, names_row)
 
 
 def _spec_of(result: FitResult):

@@ -41,6 +41,7 @@ from cfa_tool.pipeline.inputs import (data_problems, load_data_for, load_spec, m
 from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
 from cfa_tool.data.answer_words import code_answer_words, coding_json, coding_record
 from cfa_tool.data.matching import check_columns
+from cfa_tool.data.readers import sheet_of_each
 from cfa_tool.data.moments import SampleMoments, row_numbers, sample_moments
 from cfa_tool import options as check
 from cfa_tool.errors import DataError, EstimationError, OptionError, estimation_of, printable
@@ -228,7 +229,7 @@ def _same_categories(calibration, validation, frame: pd.DataFrame) -> None:
         first = int(row_numbers(frame)[np.argmax(where)])
         raise DataError(f"{validation.source}: ordinal item '{printable(name)}' has the answer"
                         f"{'s' if len(new) > 1 else ''} {', '.join(f'{c:g}' for c in new)} ({int(where.sum())} rows, the "
-                        f"first in data row {first}), which the calibration sample {calibration.source} never had (its "
+                        f"first in row {first}), which the calibration sample {calibration.source} never had (its "
                         f"categories: {', '.join(f'{c:g}' for c in seen)}); the two samples' answer scales differ, so "
                         f"the calibration estimates cannot be carried over: recode the answers alike in both files or "
                         f"leave those rows out")
@@ -290,10 +291,12 @@ SPLIT_HALF_KEYWORDS = ("model", "data", "seed", "ordinal", "ordinal_estimator", 
 
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
-              sheet: str | None = None, missing_codes: tuple[float, ...] = (), **options) -> Replication:
+              sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
+              **options) -> Replication:
     """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
     their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too);
-    ``sheet`` and ``missing_codes`` apply to both files, as for ``fit``."""
+    ``missing_codes`` apply to both files, as for ``fit``; ``sheet`` to those of the two that are Excel workbooks
+    (a calibration workbook with a CSV validation file), an error when neither is one."""
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
@@ -302,7 +305,9 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     if _same_file(calibration, validation):
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           f"new data ({_one_file_instead()})")
-    read = [load_data_for(spec, calibration, sheet, missing_codes), load_data_for(spec, validation, sheet, missing_codes)]
+    sheets = sheet_of_each((calibration, validation), sheet)
+    read = [load_data_for(spec, calibration, sheets[0], missing_codes, names_row=names_row),
+            load_data_for(spec, validation, sheets[1], missing_codes, names_row=names_row)]
     for loaded in read:
         check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
     read, notes = zip(*(_words_coded(spec, loaded, missing_codes) for loaded in read))
@@ -345,7 +350,8 @@ def _words_coded(spec: Spec, loaded, missing_codes=()) -> tuple:
 
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1,
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
-               sheet: str | None = None, missing_codes: tuple[float, ...] = (), **options) -> tuple[Replication, Replication]:
+               sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
+               **options) -> tuple[Replication, Replication]:
     """Random halves A and B (seeded) of the rows analysed (with continuous items and gaps, every row with an
     answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse."""
     seed = check.seed(seed)
@@ -354,7 +360,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
                                                      options if missing is None else {**options, "missing": missing},
                                                      SPLIT_HALF_KEYWORDS)
-    loaded = load_data_for(spec, data, sheet, missing_codes)
+    loaded = load_data_for(spec, data, sheet, missing_codes, names_row=names_row)
     check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
     loaded, notes = _words_coded(spec, loaded, missing_codes)
     frame, source = loaded.frame, loaded.source
@@ -379,7 +385,7 @@ class SplitRows:
     split: int
     in_file: int
     complete_only: bool
-    #: the data-row numbers (1 = the first row after the header) of half A and of half B
+    #: the row numbers (as the file numbers them, data.moments.row_numbers) of half A and of half B
     half_a: tuple[int, ...] = field(default=(), repr=False)
     half_b: tuple[int, ...] = field(default=(), repr=False)
 
@@ -390,7 +396,7 @@ class SplitRows:
 def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal_items, method, missing,
                 pairwise: bool = False, **options) -> tuple[tuple[Replication, Replication], tuple[tuple[int, ...], ...]]:
     """The halves of the rows fit would analyse: with gaps kept (full-information ML, or ordinal items' pairwise
-    rows), every row with an answer; else the complete rows.  Also the data-row numbers of halves A and B."""
+    rows), every row with an answer; else the complete rows.  Also the row numbers of halves A and B."""
     handling = MissingData.LISTWISE
     if not ordinal_items:
         handling, _ = refit_missing_handling(frame, spec.observed_names, missing)

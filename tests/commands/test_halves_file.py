@@ -1,5 +1,5 @@
-"""``--halves-file`` of explore --split and replicate --data: which data rows went to which random half, saved as a
-CSV (data_row, half) that never replaces a file.  Check values: the halves against the JSON's own row lists and the
+"""``--halves-file`` of explore --split and replicate --data: which rows went to which random half, saved as a
+CSV (row, half) that never replaces a file.  Check values: the halves against the JSON's own row lists and the
 fits' N (explore), the same seed drawing the same halves in both commands (explore then confirm in the other half),
 and the rows of a half refitted from the saved file giving the calibration fit's chi-square (replicate), on the
 Holzinger & Swineford (1939) data (301 rows, tests/datasets)."""
@@ -34,11 +34,11 @@ def test_both_commands_save_the_same_halves_and_the_rows_refit_as_reported(tmp_p
     assert code == 0, err
     assert f"The rows of each half written to {explored}" in out
     halves = pd.read_csv(explored)
-    assert list(halves.columns) == ["data_row", "half"]
-    assert halves["data_row"].tolist() == list(range(1, 302))  # every row once, in the order of the file
+    assert list(halves.columns) == ["row", "half"]
+    assert halves["row"].tolist() == list(range(2, 303))  # every row once, in the order of the file (by its line)
     split = json.loads(js.read_text())["split"]
-    assert halves.loc[halves["half"] == "exploration", "data_row"].tolist() == split["exploration_rows"]
-    assert halves.loc[halves["half"] == "confirmation", "data_row"].tolist() == split["confirmation_rows"]
+    assert halves.loc[halves["half"] == "exploration", "row"].tolist() == split["exploration_rows"]
+    assert halves.loc[halves["half"] == "confirmation", "row"].tolist() == split["confirmation_rows"]
     assert split["confirmation"]["n_obs"] == (halves["half"] == "confirmation").sum() == 150
 
     code, _, err = _run(["replicate", model, "--data", HS_FILE, "--seed", 5, "--halves-file", replicated], capsys)
@@ -48,7 +48,7 @@ def test_both_commands_save_the_same_halves_and_the_rows_refit_as_reported(tmp_p
     assert again["half"].map({"A": "exploration", "B": "confirmation"}).tolist() == halves["half"].tolist()
     # the saved rows of half A, fitted alone, give the calibration fit of the replication
     data = pd.read_csv(HS_FILE)
-    rows_a = again.loc[again["half"] == "A", "data_row"].to_numpy() - 1
+    rows_a = again.loc[again["half"] == "A", "row"].to_numpy() - 2  # lines to positions (the header is line 1)
     pair = cfa_tool.split_half(MODEL, HS_FILE, seed=5)
     direct = cfa_tool.fit(MODEL, data.iloc[rows_a])
     assert pair[0].calibration_result.n_obs == direct.n_obs == 151

@@ -25,7 +25,7 @@ def _run(argv, capsys) -> tuple[int, str, str]:
 
 def _with_code(tmp_path: Path) -> Path:
     frame = pd.read_csv(DEMO)
-    frame.loc[[2, 30, 99], "clean"] = -99  # data rows 3, 31, 100
+    frame.loc[[2, 30, 99], "clean"] = -99  # lines 4, 32, 101 of the file
     path = tmp_path / "coded.csv"
     frame.to_csv(path, index=False)
     return path
@@ -48,7 +48,7 @@ def test_check_shows_a_forgotten_code_before_its_tables(tmp_path, capsys):
     out = " ".join(out.replace("│", " ").split())
     caution = out.index("the value -99")
     assert caution < out.index("Model check") < out.index("Share of rows answering")
-    assert "data rows 3, 31, 100" in out and "--missing-codes -99" in out
+    assert "rows 4, 32, 101" in out and "--missing-codes -99" in out
     assert "values that look like no answers" in (tmp_path / "check.json").read_text()
     # the counts agree with the caution: the three rows are complete only if -99 is an answer
     frame = pd.read_csv(DEMO)
@@ -77,10 +77,10 @@ def test_fit_cautions_first_and_still_fits(tmp_path, capsys):
 def test_a_fit_that_fails_on_a_totals_row_names_the_row_first(tmp_path, capsys):
     data = _with_totals(tmp_path)
     code, _, err = _run(["fit", MODEL, "--data", data], capsys)
-    rows = len(pd.read_csv(DEMO)) + 1
+    rows = len(pd.read_csv(DEMO)) + 2  # the totals row's line in the file (the header is line 1)
     assert code == 3
     err = " ".join(err.split())
-    assert err.index(f"Data row {rows} of totals.csv holds the sums of the other rows' answers") < err.index("Then:")
+    assert err.index(f"Row {rows} of totals.csv holds the sums of the other rows' answers") < err.index("Then:")
 
 
 def test_rows_without_a_group_label_are_counted_as_read(tmp_path, capsys):
@@ -130,7 +130,7 @@ def test_explore_and_replicate_of_two_files_caution_first(tmp_path, capsys):
     assert out.index("The item column clean of coded.csv holds the value -99") < out.index("Exploratory factor analysis")
     saved = json.loads((tmp_path / "explore.json").read_text())
     assert saved["data_problems"][0]["kind"] == "values that look like no answers"
-    assert "data rows 3, 31, 100" in saved["problems"][0]
+    assert "rows 4, 32, 101" in saved["problems"][0]
     other = tmp_path / "other.csv"  # new rows (replicate refuses a validation file of the calibration rows)
     demo = pd.read_csv(DEMO)
     items = [c for c in demo.columns if pd.api.types.is_numeric_dtype(demo[c])]

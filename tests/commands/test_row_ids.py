@@ -41,23 +41,23 @@ def test_fit_names_the_case_diagnostics_by_the_id_column(tmp_path, capsys):
     cases = _cases(tmp_path, capsys, "--id", "id")
     assert cases
     for case in cases:
-        # data row k is the k-th row after the header; its id is that row's value in the 'id' column of the file
-        assert case["id"] == str(raw["id"].iloc[case["row"] - 1])
+        # rows are named by the file's lines (the header is line 1): row k is the (k-1)-th row after the header
+        assert case["id"] == str(raw["id"].iloc[case["row"] - 2])
     assert any(case["id"] != str(case["row"]) for case in cases)  # the ids are not the row numbers
 
 
 def test_without_id_column_the_row_names_name_the_cases(tmp_path, capsys):
     raw = pd.read_csv(HS_FILE, index_col=0)
     for case in _cases(tmp_path, capsys):
-        assert case["id"] == str(raw.index[case["row"] - 1])
+        assert case["id"] == str(raw.index[case["row"] - 2])
 
 
 def test_a_filtered_fit_keeps_the_ids_of_the_rows_it_analysed(tmp_path, capsys):
     raw = pd.read_csv(HS_FILE, index_col=0)
     cases = _cases(tmp_path, capsys, "--id", "id", "--keep", "school = Grant-White")
     for case in cases:
-        assert raw["school"].iloc[case["row"] - 1] == "Grant-White"
-        assert case["id"] == str(raw["id"].iloc[case["row"] - 1])
+        assert raw["school"].iloc[case["row"] - 2] == "Grant-White"
+        assert case["id"] == str(raw["id"].iloc[case["row"] - 2])
 
 
 def test_an_id_column_is_kept_as_written(tmp_path, hs_data):
@@ -107,7 +107,7 @@ def test_rows_with_gaps_are_named_by_the_id_column_under_full_information(tmp_pa
     cases = payload["diagnostics"]["influential_cases"]
     assert cases and any(case["answered"] == 8 for case in cases + payload["diagnostics"]["unusual_cases"])
     for case in cases:
-        assert case["id"] == str(raw["id"].iloc[case["row"] - 1])  # the file's own id of that data row
+        assert case["id"] == str(raw["id"].iloc[case["row"] - 2])  # the file's own id of that row
 
 
 def test_an_id_column_that_could_name_nothing_is_an_error(hs_data):

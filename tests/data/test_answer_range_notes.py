@@ -1,4 +1,4 @@
-"""Answers that look impossible are named (column, value, data rows): answers outside the scale a 'reversed'
+"""Answers that look impossible are named (column, value, rows): answers outside the scale a 'reversed'
 statement declares are refused in every item it covers (its own and the other items of the factors it keys);
 a partner answered mostly outside it, and values without a value label in an item whose other values are
 labelled, are named without refusing the data (new-user trials U3, 7 U12).  Check values: the cells set by hand
@@ -25,7 +25,7 @@ def answers():
     latent = np.repeat(eta, 3, axis=1) * 0.7 + rng.normal(size=(300, 6)) * 0.7
     data = pd.DataFrame(np.clip(np.round(latent * 1.3 + 3), 1, 5), columns=ITEMS)
     data["a1"] = 6 - data["a1"]  # worded against a
-    data.loc[9, "a2"], data.loc[19, "a2"], data.loc[40, "b3"] = 0, 0, 9  # data rows 10, 20 and 41
+    data.loc[9, "a2"], data.loc[19, "a2"], data.loc[40, "b3"] = 0, 0, 9  # rows 10, 20 and 41
     return data
 
 
@@ -33,7 +33,7 @@ def test_partners_of_reversed_items_outside_the_declared_scale_are_refused_as_th
     # one rule for every item the statement's scale covers (new-user trial 7, U12: a note on the partners let the
     # stray answers become categories); the remedy first is missing_codes (--missing-codes), a wider scale only second
     assert refusal(MODEL + "reversed a1 on 1 to 5\n", answers) == (
-        "<data frame> holds answers outside the scale 1 to 5 declared here: 'a2' 0 (2 cells: data rows 10, 20); if "
+        "<data frame> holds answers outside the scale 1 to 5 declared here: 'a2' 0 (2 cells: rows 10, 20); if "
         "they are typing errors or codes for no answer, give missing_codes=[0] (or correct them in a copy of the "
         "file); if the scale really runs wider, give its lowest and highest answers here")
     # b is not keyed by the statement: its 9 is not judged by that scale
@@ -62,10 +62,10 @@ def test_values_without_a_value_label_are_named(tmp_path, answers):
     result = cfa_tool.fit(MODEL, path)
     named = [w for w in result.warnings if "has no value label" in w]
     assert named == [
-        "labelled.sav: 'a2' has the value 0 (data rows 10, 20), which has no value label, while its other values are "
+        "labelled.sav: 'a2' has the value 0 (rows 10, 20), which has no value label, while its other values are "
         "labelled; if it is a typing error or means 'no answer', give --missing-codes 0 (or correct it in a copy of "
         "the file)",
-        "labelled.sav: 'b3' has the value 9 (data row 41), which has no value label, while its other values are "
+        "labelled.sav: 'b3' has the value 9 (row 41), which has no value label, while its other values are "
         "labelled; if it is a typing error or means 'no answer', give --missing-codes 9 (or correct it in a copy of "
         "the file)"]
 

@@ -155,7 +155,7 @@ def test_a_labelled_code_outside_a_declared_scale_gets_missing_codes_never_a_wid
     path = tmp_path / "riders.dta"
     pyreadstat.write_dta(data, str(path), variable_value_labels=_labels({7: "other"}))
     assert refusal(MODEL + "reversed c1 on 0 to 3\n", path) == (
-        "riders.dta holds answers outside the scale 0 to 3 declared here: 'c3' 7 'other' (2 cells: data rows 11, 12); "
+        "riders.dta holds answers outside the scale 0 to 3 declared here: 'c3' 7 'other' (2 cells: rows 11, 12); "
         "if they are typing errors or codes for no answer, give missing_codes=[7] (or correct them in a copy of the "
         "file)")
 
@@ -166,7 +166,7 @@ def test_an_answer_outside_a_declared_scale_is_refused_in_every_item_it_covers(a
     data = answers.copy()
     data.loc[140, "c1"], data.loc[5, "c3"] = -1, 4
     assert refusal(MODEL + "reversed c2 on 0 to 3\n", data) == (
-        "<data frame> holds answers outside the scale 0 to 3 declared here: 'c1' -1 (data row 141); 'c3' 4 (data row "
+        "<data frame> holds answers outside the scale 0 to 3 declared here: 'c1' -1 (row 141); 'c3' 4 (row "
         "6); if they are typing errors or codes for no answer, give missing_codes=[-1, 4] (or correct them in a copy "
         "of the file)")
     assert cfa_tool.check(MODEL + "reversed c2 on 0 to 3\n", data, missing_codes=[-1, 4]).complete == len(data) - 2
@@ -187,10 +187,10 @@ def test_text_cells_that_say_no_answer_are_read_as_missing_and_codes_then_apply(
         "3 cells of the items in riders.csv hold values that the file writes as no answer, read as missing, not as "
         "answers: 'refused' (2 cells: c2 1, s3 1); 'Don't know' (1 cell: s1 1).")
     assert result.complete == len(answers) - 4
-    # other text is named where it is (column, data row, value), whatever codes are given
+    # other text is named where it is (column, row, value), whatever codes are given
     text.loc[12, "c1"] = "n/k"
     text.to_csv(path, index=False)
-    with pytest.raises(DataError, match=r"column 'c1' is used as an indicator but holds text \('n/k' in data row 13\)"):
+    with pytest.raises(DataError, match=r"column 'c1' is used as an indicator but holds text \('n/k' in row 14\)"):
         cfa_tool.check(MODEL + "reversed c2 on 0 to 3\n", path, missing_codes=[9])
 
 

@@ -32,7 +32,7 @@ def _likert(seed: int, n: int = 300, p: int = 6) -> pd.DataFrame:
 
 def test_a_forgotten_code_in_a_simulated_item_is_named_with_its_rows():
     frame = _likert(1)
-    frame.loc[[4, 17, 250], "x3"] = -99  # data rows 5, 18 and 251
+    frame.loc[[4, 17, 250], "x3"] = -99  # rows 5, 18 and 251
     found = odd_values(frame, list(frame.columns))
     assert len(found) == 1
     odd = found[0]
@@ -68,7 +68,7 @@ def test_a_totals_row_under_the_demo_data_is_named_by_its_row():
     frame = pd.concat([frame, totals], ignore_index=True)
     found = odd_values(frame, items)
     assert [(o.kind, o.rows) for o in found] == [(OddKind.FAR_BEYOND, (len(frame),))]
-    assert found[0].columns == tuple(items) and "Delete data row" in found[0].advice()
+    assert found[0].columns == tuple(items) and "Delete row" in found[0].advice()
 
 
 @pytest.mark.parametrize("kind, make", [(OddKind.SUMS_ROW, lambda f: f.sum()), (OddKind.MEANS_ROW, lambda f: f.mean().round(2))])
@@ -175,10 +175,10 @@ def test_a_means_row_that_stops_an_ordinal_fit_is_named_as_one_first():
     rng = np.random.default_rng(3)
     latent = rng.normal(size=(200, 1)) @ np.full((1, 6), 0.7) + rng.normal(scale=0.7, size=(200, 6))
     frame = pd.DataFrame(np.digitize(latent, [-1.0, -0.3, 0.3, 1.0]) + 1.0, columns=[f"q{i}" for i in range(1, 7)])
-    frame.loc[len(frame)] = frame.mean().round(2)  # data row 201: the means of the rows above
+    frame.loc[len(frame)] = frame.mean().round(2)  # row 201: the means of the rows above
     with pytest.raises(DataError) as found:
         cfa_tool.fit("factor f: q1..q6\n", frame, ordinal="all")
     message = str(found.value)
-    assert message.startswith("Data row 201 of <data frame> holds the means of the other rows' answers")
+    assert message.startswith("Row 201 of <data frame> holds the means of the other rows' answers")
     assert "leave it out with a --keep filter" in message
-    assert message.index("What to try first") < message.index("has the answer") < message.index("in data row 201")
+    assert message.index("What to try first") < message.index("has the answer") < message.index("in row 201")

@@ -57,7 +57,7 @@ def test_a_filter_on_numbers_names_the_text_cell(riders, tmp_path):
     data.to_csv(path, index=False)
     with pytest.raises(OptionError) as caught:
         cfa_tool.check(MODEL, str(path), keep="age >= 30")
-    assert "'65+' in data row 4" in str(caught.value)
+    assert "'65+' in row 5" in str(caught.value)
 
 
 def test_explore_leaves_out_a_constant_column_and_platform_records(riders, tmp_path):

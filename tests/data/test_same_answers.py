@@ -34,10 +34,10 @@ def _answers(seed: int = 5) -> pd.DataFrame:
 def _planted(frame: pd.DataFrame) -> pd.DataFrame:
     frame = frame.copy()
     items = [c for c in frame.columns if c != "respondent"]
-    frame.loc[6, items] = 5.0  # data row 7: 5 to every item
-    frame.loc[40, items] = 1.0  # data row 41: 1 to every item ...
+    frame.loc[6, items] = 5.0  # row 7: 5 to every item
+    frame.loc[40, items] = 1.0  # row 41: 1 to every item ...
     frame.loc[40, "a1"] = np.nan  # ... but one it left blank
-    frame.loc[99, items] = 3.0  # data row 100: 3 to all but one
+    frame.loc[99, items] = 3.0  # row 100: 3 to all but one
     frame.loc[99, "b4"] = 4.0
     return frame
 
@@ -64,7 +64,7 @@ def test_fit_and_scores_name_the_rows_first_by_their_ids_and_keep_them():
     assert first.kind is ProblemKind.SAME_ANSWER_ROWS and not first.kind.inadmissible and result.admissible
     assert first.value == 2.0
     assert "2 rows gave one answer each (1, 5)" in first.explanation
-    assert "data rows 7 (P007), 41 (P041)" in first.explanation and "P100" not in first.explanation
+    assert "rows 7 (P007), 41 (P041)" in first.explanation and "P100" not in first.explanation
     assert result.n_obs == 300  # kept in the analysis
     scored = cfa_tool.scores(MODEL + REVERSED, frame, id_column="respondent")
     assert scored.fit.problems[0] == first
@@ -90,8 +90,8 @@ def test_the_middle_answer_is_its_own_reversal_and_skipped_items_are_not_counted
 
     frame = _answers()
     items = [c for c in frame.columns if c != "respondent"]
-    frame.loc[3, items] = 3.0  # data row 4: the middle answer throughout
-    frame.loc[7, items] = 4.0  # data row 8: 4 throughout, but b3 (reversed) left blank
+    frame.loc[3, items] = 3.0  # row 4: the middle answer throughout
+    frame.loc[7, items] = 4.0  # row 8: 4 throughout, but b3 (reversed) left blank
     frame.loc[7, "b3"] = np.nan
     text = cfa_tool.fit(MODEL + REVERSED, frame, id_column="respondent").problems[0].explanation
     said_of_row_4 = text[text.index("P004"):]
@@ -136,7 +136,7 @@ def test_scores_of_other_data_name_that_files_rows_and_say_which_are_the_fits(sa
     result = cfa_tool.fit(MODEL + REVERSED, _planted(_answers()), id_column="respondent")  # rows 7 and 41
     wave = _answers(seed=6).iloc[:50].reset_index(drop=True)
     items = [c for c in wave.columns if c != "respondent"]
-    wave.loc[2, items] = 2.0  # data row 3 of the new wave: 2 to every item
+    wave.loc[2, items] = 2.0  # row 3 of the new wave: 2 to every item
     if saved:
         path = tmp_path / "fit.json"
         path.write_text(json.dumps({"tool": "cfa-tool", **result.to_dict()}))
@@ -145,11 +145,11 @@ def test_scores_of_other_data_name_that_files_rows_and_say_which_are_the_fits(sa
         scored = score_with_fit(result, wave, id_column="respondent")
     same = [p for p in scored.fit.problems if p.kind is ProblemKind.SAME_ANSWER_ROWS]
     own = same[0]
-    assert own.value == 1.0 and "data row 3 (P003)" in own.explanation and "scored like every row" in own.explanation
+    assert own.value == 1.0 and "row 3 (P003)" in own.explanation and "scored like every row" in own.explanation
     assert not own.explanation.startswith(ABOUT_THE_FIT) and "fit again" not in own.advice
     # the earlier fit's rows are still said, as the fit's
     assert [p.explanation.startswith(ABOUT_THE_FIT) for p in same[1:]] == [True]
-    assert "data rows 7 (P007), 41 (P041)" in same[1].explanation
+    assert "rows 7 (P007), 41 (P041)" in same[1].explanation
     assert all(p.explanation.startswith(ABOUT_THE_FIT) for p in scored.fit.problems[1:])
     assert not np.isnan(scored.table.iloc[2, 1])  # scored like every row
     # the scores file marks the row (a plain column, 1 or 0), the scored file's own rows only

@@ -227,7 +227,7 @@ def test_cluster_robust_intervals_cover_where_naive_ones_do_not():
 def design_files(tmp_path, hs_data):
     data = hs_data.assign(w=np.linspace(0.5, 2.0, len(hs_data)), unit=np.arange(len(hs_data)) // 10,
                           zero=0.0, negative=1.0, gap=1.0, frac=1.5, unit_gap=1.0).reset_index(drop=True)
-    data.loc[4, "negative"] = -1.0  # the fifth data row
+    data.loc[4, "negative"] = -1.0  # the fifth row
     data.loc[9, "gap"] = np.nan
     data.loc[2, "unit_gap"] = np.nan
     path = tmp_path / "survey.csv"
@@ -238,13 +238,13 @@ def design_files(tmp_path, hs_data):
 
 
 @pytest.mark.parametrize("options, words", [
-    (["--weights", "negative"], "'negative', data row 5: a negative weight"),
-    (["--weights", "gap"], "'gap', data row 10: no weight"),
+    (["--weights", "negative"], "'negative', row 6: a negative weight"),
+    (["--weights", "gap"], "'gap', row 11: no weight"),
     (["--weights", "zero"], "every weight in column 'zero' is zero"),
     (["--weights", "x1"], "'x1' is an item in the model and cannot also be the weights column"),
-    (["--weights", "frac", "--weight-kind", "frequency"], "'frac', data row 1: frequency weights"),
+    (["--weights", "frac", "--weight-kind", "frequency"], "'frac', row 2: frequency weights"),
     (["--weights", "nowhere"], "there is no weights column 'nowhere'"),
-    (["--cluster", "unit_gap"], "column 'unit_gap', data row 3: no cluster given"),
+    (["--cluster", "unit_gap"], "column 'unit_gap', row 4: no cluster given"),
     (["--weight-kind", "frequency"], "no weights column"),
     (["--weights", "w", "--standard-errors-from", "observed"], "information they come from (--standard-errors-from) cannot be chosen"),
     (["--weights", "w", "--cluster", "w"], "the column 'w' is named for two parts of the design"),

@@ -1,0 +1,214 @@
+"""Rows named as the file numbers them, blank rows and footer rows, a row of names under question texts, and how a
+text file was read (new-user trial s10: an HR platform's Excel export and a Windows-1252 CSV with semicolons and
+decimal commas).
+
+The files are written here by openpyxl and by Python's cp1252 codec, writers this project did not write; the
+reference counts (rows with gaps, rows answering nothing, the row a cell sits in) come from pandas reading the same
+table and from the positions the test wrote things at.  The data are the bundled demo (a fictional transit agency's
+rider survey, simulated with a fixed seed)."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.cli import main
+from cfa_tool.data.readers import TextEncoding, read_data
+from cfa_tool.errors import DataError, OptionError
+
+openpyxl = pytest.importorskip("openpyxl")
+
+ITEMS = ["on_time", "short_wait", "accurate_info", "easy_transfer", "seat_available", "clean", "temperature",
+         "room_to_stand", "greeting", "helpful", "respectful", "clear_answers"]
+BLANK_AFTER = (40, 41, 200)  # blank sheet rows are put after these data rows (0-based positions in the demo)
+FOOTER = "Total responses: 480"
+
+
+def _export(rider_demo: pd.DataFrame, path, question_texts: bool = False, bad_cell: int | None = None):
+    """A platform-like export of the demo: blank rows among the data, two blank rows and a footer under them;
+    ``question_texts``: a row of question texts above the codes; ``bad_cell``: the data row (0-based) whose
+    'on_time' answer is the text 'x'.  Returns the workbook path and each data row's sheet row."""
+    data = rider_demo.copy()
+    for k in (3, 17, 99):  # a few gaps, so that rows with gaps are counted
+        data.loc[k, "clean"] = np.nan
+    data = data.astype(object).where(data.notna(), None)
+    book = openpyxl.Workbook()
+    sheet = book.active
+    sheet.title = "Responses"
+    if question_texts:
+        sheet.append([f"How much do you agree: {c}?" if c in ITEMS else c.replace("_", " ") for c in data.columns])
+    sheet.append(list(data.columns))
+    rows = []
+    for k, row in enumerate(data.itertuples(index=False)):
+        values = list(row)
+        if bad_cell == k:
+            values[2] = "x"  # column C: on_time
+        sheet.append(values)
+        rows.append(sheet.max_row)
+        if k in BLANK_AFTER:
+            sheet.append([None] * len(values))
+            sheet.cell(sheet.max_row, 1).value = None
+            sheet.append([])
+    last = sheet.max_row
+    sheet.cell(last + 3, 1).value = FOOTER  # two blank rows, then the footer
+    book.save(path)
+    return path, rows, last + 3
+
+
+def test_a_bad_cell_is_named_by_its_sheet_row_and_address(rider_demo, rider_model, tmp_path):
+    path, rows, _ = _export(rider_demo, tmp_path / "export.xlsx", bad_cell=250)
+    with pytest.raises(DataError) as caught:
+        cfa_tool.fit(rider_model, str(path))
+    sheet_row = rows[250]  # where openpyxl put it
+    assert sheet_row > 252  # blank rows above it: the data-row count (251) would differ from the sheet row
+    assert f"('x' in row {sheet_row}, cell C{sheet_row})" in str(caught.value)
+
+
+def test_a_bad_cell_of_a_text_file_is_named_by_its_line(rider_demo, rider_model, tmp_path):
+    data = rider_demo.copy()
+    data["on_time"] = data["on_time"].astype(object)
+    data.loc[30, "on_time"] = "x"
+    lines = data.to_csv(index=False).splitlines()
+    lines[1:1] = ["", ",,,,,,,,,,,,,"]  # an empty line and a line of commas under the header
+    path = tmp_path / "export.csv"
+    path.write_text("\n".join(lines) + "\n")
+    expected = 1 + 2 + 31  # the header, the two blank lines, then the 31st data row
+    assert lines[expected - 1].split(",")[2] == "x"
+    with pytest.raises(DataError, match=rf"\('x' in row {expected}\)"):
+        cfa_tool.fit(rider_model, str(path))
+    loaded = read_data(path)
+    assert [n for n in loaded.notes if "1 row with no value in any column was skipped (row 3)" in n]
+
+
+def test_blank_rows_and_a_footer_count_alike_in_the_file_and_a_data_frame(rider_demo, rider_model, tmp_path):
+    path, rows, footer_row = _export(rider_demo, tmp_path / "export.xlsx")
+    by_pandas = pd.read_excel(path, sheet_name="Responses")  # pandas keeps the blank rows as rows of NaN
+    blank_in_pandas = int(by_pandas.isna().all(axis=1).sum())
+    assert blank_in_pandas == 2 * len(BLANK_AFTER) + 2
+    gaps_by_pandas = int((by_pandas[ITEMS].isna().any(axis=1) & by_pandas[ITEMS].notna().any(axis=1)).sum())
+    assert gaps_by_pandas >= 3
+
+    from_file = cfa_tool.fit(rider_model, str(path))
+    from_frame = cfa_tool.fit(rider_model, by_pandas)
+    checked = cfa_tool.check(rider_model, str(path))
+    for result in (from_file, from_frame):
+        assert result.data.rows_read == len(rider_demo) + 1  # the answers and the footer; no blank row
+        assert result.n_obs == len(rider_demo)
+        gaps = [w for w in result.warnings if "miss some answers" in w]
+        assert gaps and gaps[0].startswith(f"{gaps_by_pandas} of {len(rider_demo) + 1} rows")
+        blank = [w for w in result.warnings if "with no value in any column" in w]
+        assert blank and blank[0].count(",") >= 4  # the rows are named
+    assert checked.with_gaps == gaps_by_pandas and checked.empty == 1 and checked.empty_rows == (footer_row,)
+    assert f"1 with no answer to any model variable (row {footer_row})." in checked.summary()
+    file_notes = [w for w in from_file.warnings if "answered none of the model variables" in w]
+    assert file_notes == [f"1 of {len(rider_demo) + 1} rows answered none of the model variables and was left out "
+                          f"(row {footer_row})"]
+    with_ids = cfa_tool.fit(rider_model, str(path), id_column="rider_id")  # the footer's text is its id
+    assert any(w.endswith(f"left out (row {footer_row} ('{FOOTER}'))") for w in with_ids.warnings)
+    blank_rows = next(w for w in from_file.warnings if "with no value in any column" in w)
+    assert f"rows {rows[40] + 1}, {rows[40] + 2}, {rows[41] + 1}, {rows[41] + 2}, {rows[200] + 1} and 3 more" in blank_rows
+    # the same coverage in both methods paragraphs
+    assert from_file.data.answered == from_frame.data.answered
+
+
+@pytest.mark.parametrize("method", ["regression", "bartlett", "correlation-preserving"])
+def test_a_footer_row_gets_empty_scores(rider_demo, rider_model, tmp_path, method):
+    path, _, _ = _export(rider_demo, tmp_path / "export.xlsx")
+    scored = cfa_tool.scores(rider_model, str(path), methods=[method], id_column="rider_id")
+    table = scored.table
+    assert len(table) == len(rider_demo) + 1  # one line per row of the file with a value, the footer included
+    footer = table[table["rider_id"] == FOOTER]
+    assert len(footer) == 1
+    score_columns = [c for c in table.columns if c.endswith(method.replace("-", "_"))]
+    assert len(score_columns) == 3
+    assert footer[score_columns].isna().all(axis=None)  # no answer: no score, never 0
+    assert table[score_columns].iloc[:-1].notna().all(axis=None)
+
+
+def test_a_row_of_the_models_names_under_question_texts_is_said_and_can_be_read(rider_demo, rider_model, tmp_path):
+    path, _, _ = _export(rider_demo, tmp_path / "export.xlsx", question_texts=True)
+    with pytest.raises(DataError) as caught:
+        cfa_tool.check(rider_model, str(path))
+    message = str(caught.value)
+    assert "row 2 holds the model's variable names ('on_time', 'short_wait', 'accurate_info', ...)" in message
+    assert "--names-row 2" in message and "delete" not in message
+    plain, _, _ = _export(rider_demo, tmp_path / "plain.xlsx")
+    read_so = cfa_tool.check(rider_model, str(path), names_row=2)
+    reference = cfa_tool.check(rider_model, str(plain))
+    assert (read_so.rows, read_so.complete, read_so.with_gaps, read_so.empty) == \
+        (reference.rows, reference.complete, reference.with_gaps, reference.empty)
+    assert any("the column names were read from row 2, as --names-row asks; row 1 above it was not read" in n
+               for n in read_so.notes)
+
+
+def test_names_row_in_a_text_file_and_where_it_cannot_apply(rider_demo, rider_model, tmp_path, capsys):
+    text = tmp_path / "export.csv"
+    texts = ",".join(f"Question {k}" for k in range(len(rider_demo.columns)))
+    text.write_text(texts + "\n" + rider_demo.to_csv(index=False))
+    model = tmp_path / "riders.cfa"
+    model.write_text(rider_model)
+    with pytest.raises(DataError, match="row 2 holds the model's variable names"):
+        cfa_tool.fit(rider_model, str(text))
+    result = cfa_tool.fit(rider_model, str(text), names_row=2)
+    reference = cfa_tool.fit(rider_model, rider_demo)
+    assert result.fit.chi_square == pytest.approx(reference.fit.chi_square, rel=1e-10)
+    assert main(["fit", str(model), "--data", str(text), "--names-row", "2"]) == 0
+    capsys.readouterr()
+    with pytest.raises(OptionError, match="data frame"):
+        cfa_tool.fit(rider_model, rider_demo, names_row=2)
+    with pytest.raises(DataError, match="cannot hold the column names"):
+        cfa_tool.fit(rider_model, str(text), names_row=10_000)
+    with pytest.raises(SystemExit) as refused:  # argparse's refusal of the option's value
+        main(["fit", str(model), "--data", str(text), "--names-row", "0"])
+    assert refused.value.code == 2 and "row number (1 or more)" in capsys.readouterr().err
+
+
+def test_a_windows_text_file_says_how_it_was_read(rider_demo, rider_model, tmp_path):
+    data = rider_demo.rename(columns={"district": "Bezirk"})
+    data["Bezirk"] = data["Bezirk"].map({"north": "Nördlich"}).fillna("Süd")
+    data["Fahrzeit"] = np.linspace(5.25, 30.5, len(data))
+    path = tmp_path / "export.csv"
+    path.write_bytes(data.to_csv(index=False, sep=";", decimal=",").encode("cp1252"))
+    loaded = read_data(path)
+    assert loaded.reading is not None
+    assert (loaded.reading.encoding, loaded.reading.separator, loaded.reading.decimal) == \
+        (TextEncoding.WINDOWS_WESTERN, ";", ",")
+    assert loaded.frame["Fahrzeit"].iloc[1] == pytest.approx(data["Fahrzeit"].iloc[1])
+    assert loaded.frame["Bezirk"].iloc[0] == data["Bezirk"].iloc[0]
+    note = next(n for n in loaded.notes if "read as" in n)
+    assert "Windows-1252" in note and "separated by semicolons" in note and "decimals written with commas" in note
+    payload = cfa_tool.fit(rider_model, str(path)).to_dict()
+    assert payload["data"]["reading"] == {"encoding": "Windows-1252 (Western European)", "separator": ";",
+                                          "decimal_mark": ",", "names_line": 1}
+    plain = tmp_path / "plain.csv"
+    rider_demo.to_csv(plain, index=False)
+    assert not [n for n in read_data(plain).notes if "read as" in n]  # UTF-8 with commas: in the JSON only
+    assert cfa_tool.fit(rider_model, str(plain)).to_dict()["data"]["reading"]["encoding"] == "UTF-8"
+
+
+def test_replicate_applies_the_sheet_to_the_workbook_only(rider_demo, rider_model, tmp_path, capsys):
+    model = tmp_path / "riders.cfa"
+    model.write_text(rider_model)
+    book = openpyxl.Workbook()
+    book.active.title = "Cover"
+    answers = book.create_sheet("Responses")
+    answers.append(list(rider_demo.columns))
+    for row in rider_demo.iloc[:240].itertuples(index=False):
+        answers.append(list(row))
+    workbook = tmp_path / "calibration.xlsx"
+    book.save(workbook)
+    validation = tmp_path / "validation.csv"
+    rider_demo.iloc[240:].to_csv(validation, index=False)
+    assert main(["replicate", str(model), "--calibration", str(workbook), "--validation", str(validation),
+                 "--sheet", "Responses"]) == 0
+    capsys.readouterr()
+    other = tmp_path / "other.csv"
+    rider_demo.iloc[:240].to_csv(other, index=False)
+    assert main(["replicate", str(model), "--calibration", str(other), "--validation", str(validation),
+                 "--sheet", "Responses"]) == 2
+    err = capsys.readouterr().err
+    assert "is an Excel workbook, so a sheet ('Responses') cannot be chosen" in err and len(err.splitlines()) == 1
