@@ -273,9 +273,9 @@ def _no_group_notes(no_group: int, group: str) -> list[str]:
 
 
 #: the keywords of :func:`fit` besides the fit options (an unknown keyword's near names: :func:`make_options`)
-FIT_KEYWORDS = ("model", "data", "group", "reference_group", "sheet", "missing_codes", "keep", "covariance", "n_obs",
-                "means", "variables", "matrix", "sds", "divisor", "ordinal", "ordinal_estimator", "id_column",
-                "weights", "cluster", "strata", "weight_kind")
+FIT_KEYWORDS = ("model", "data", "group", "reference_group", "sheet", "names_row", "missing_codes", "keep",
+                "covariance", "n_obs", "means", "variables", "matrix", "sds", "divisor", "ordinal",
+                "ordinal_estimator", "id_column", "weights", "cluster", "strata", "weight_kind")
 
 
 def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None, *, group: str | None = None,

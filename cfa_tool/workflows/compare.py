@@ -99,8 +99,8 @@ class Comparison(Presentable):
 
 
 #: the keywords of :func:`compare` besides the fit options (an unknown keyword's near names)
-COMPARE_KEYWORDS = ("models", "data", "group", "reference_group", "sheet", "missing_codes", "keep", "ordinal",
-                    "ordinal_estimator", "weights", "cluster", "strata", "weight_kind")
+COMPARE_KEYWORDS = ("models", "data", "group", "reference_group", "sheet", "names_row", "missing_codes", "keep",
+                    "ordinal", "ordinal_estimator", "weights", "cluster", "strata", "weight_kind")
 
 
 def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, group: str | None = None,

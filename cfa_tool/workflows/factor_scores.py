@@ -256,8 +256,8 @@ class ScoreResult(Presentable):
 
 #: the keywords of :func:`scores` besides the fit options (an unknown keyword's near names)
 SCORES_KEYWORDS = ("model", "data", "methods", "standard_errors", "id_column", "group", "reference_group", "sheet",
-                   "missing_codes", "keep", "ordinal", "ordinal_estimator", "weights", "cluster", "strata",
-                   "weight_kind")
+                   "names_row", "missing_codes", "keep", "ordinal", "ordinal_estimator", "weights", "cluster",
+                   "strata", "weight_kind")
 
 
 def scores(model, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,

@@ -230,9 +230,9 @@ class InvarianceResult(Presentable):
 
 
 #: the keywords of :func:`invariance` besides the fit options (an unknown keyword's near names)
-INVARIANCE_KEYWORDS = ("model", "data", "group", "reference_group", "partial", "alpha", "sheet", "missing_codes", "keep",
-                       "ordinal", "ordinal_estimator", "decide_by", "weights", "cluster", "strata", "weight_kind",
-                       "progress")
+INVARIANCE_KEYWORDS = ("model", "data", "group", "reference_group", "partial", "alpha", "sheet", "names_row",
+                       "missing_codes", "keep", "ordinal", "ordinal_estimator", "decide_by", "weights", "cluster",
+                       "strata", "weight_kind", "progress")
 
 
 def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,

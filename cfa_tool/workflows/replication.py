@@ -285,8 +285,9 @@ SHARED_ROWS = 0.2
 
 #: the keywords of :func:`replicate` and :func:`split_half` besides the fit options (an unknown keyword's near names)
 REPLICATE_KEYWORDS = ("model", "calibration", "validation", "ordinal", "ordinal_estimator", "missing", "sheet",
-                      "missing_codes")
-SPLIT_HALF_KEYWORDS = ("model", "data", "seed", "ordinal", "ordinal_estimator", "missing", "sheet", "missing_codes")
+                      "missing_codes", "names_row")
+SPLIT_HALF_KEYWORDS = ("model", "data", "seed", "ordinal", "ordinal_estimator", "missing", "sheet", "missing_codes",
+                       "names_row")
 
 
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,

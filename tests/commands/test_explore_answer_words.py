@@ -67,7 +67,7 @@ def test_answers_recorded_as_words_are_explored_with_an_answers_file(words_file,
     result = json.loads(js.read_text())
     assert result["items"] == ITEMS  # the words' columns, without the id and the district
     said = " ".join(result["notes"])
-    assert "respondent" in said and "district ('north' in data row 1)" in said  # left out, and why
+    assert "respondent" in said and "district ('north' in row 2)" in said  # left out, and why
     assert "answers recorded as words were coded 1 (Strongly disagree) to 5 (Strongly agree) in every item" in said
     assert result["data"]["answer_coding"][0]["answers"][0] == {"word": "Strongly disagree", "code": 1.0}
     explored = cfa_tool.explore(str(path), answers=str(answers))
@@ -151,7 +151,7 @@ def test_a_typing_error_among_the_words_is_named_not_a_column_left_out(words_fil
     typo = tmp_path / "typo.csv"
     words.to_csv(typo, index=False)
     code, out, err = _run(["explore", "--data", typo, "--answers", answers], capsys)
-    assert code == 2 and "column 'x5', data row 7: the answer 'Agre' is not one of the words" in err
+    assert code == 2 and "column 'x5', row 8: the answer 'Agre' is not one of the words" in err
 
 
 def test_an_empty_item_is_an_error_naming_items_not_a_model(coded, tmp_path, capsys):
@@ -170,6 +170,7 @@ def test_rows_that_answered_no_item_are_said_to_be_left_out_not_to_miss_some_ans
     data = coded[ITEMS].astype(float)
     data.iloc[:40] = np.nan
     data.iloc[50, 0] = np.nan  # one row with a gap
+    data.insert(0, "respondent", [f"r{k}" for k in range(len(data))])  # so the rows are not blank (read as no rows)
     path = tmp_path / "empty_rows.csv"
     data.to_csv(path, index=False)
     result = cfa_tool.explore(str(path), items=ITEMS)
