@@ -657,12 +657,15 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
             "from the " + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
             + ("composite" if ordinal else "composite reliability") + " from the standardized loadings.")
     if any(r.bifactor is not None for r in rows):
-        columns[0] = ("Factor", "l")
-        columns[2:4] = [("Omega hierarchical", "r"), ("Omega total", "r")]
+        columns = [("Omega hierarchical", "r") if c == ("Omega", "r") else c for c in columns]
         for row, r in zip(body, rows):
             if r.bifactor is BifactorPart.SPECIFIC:
                 row[0] = f"{r.factor} (subscale)"
-        names = ["Factor", "Bifactor part", *names[1:]]
+        renamed = {"Omega": "Omega hierarchical (subscale for a specific factor)",
+                   "Latent-response omega": "Latent-response omega hierarchical (subscale for a specific factor)",
+                   "Omega total": "Omega total (omega subscale for a specific factor)",
+                   "Latent-response omega total": "Latent-response omega total (subscale for a specific factor)"}
+        names = ["Factor", "Bifactor part", *[renamed.get(n, n) for n in names[1:]]]
         values = [row[:1] + [r.bifactor.value if r.bifactor is not None else None] + row[1:]
                   for row, r in zip(values, rows)]
         note += " " + bifactor_reliability_sentence(rows)

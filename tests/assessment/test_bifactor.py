@@ -152,3 +152,13 @@ def test_the_normality_note_does_not_ask_for_the_robust_test_a_fit_already_has()
     assert "--robust" not in line and "of this fit guard against non-normal answers" in line
     plain = " ".join(normality_lines(cfa_tool.fit(BIFACTOR, data)))
     assert "--robust" in plain
+
+
+def test_an_ordinal_bifactor_table_keeps_its_sum_omega_column_and_labels_the_others():
+    data = _data(800)
+    cut = data.apply(lambda column: np.digitize(column, [-1.0, 0.0, 1.0]))  # four categories (invented cut points)
+    result = cfa_tool.fit(BIFACTOR, cut, ordinal=ITEMS)
+    table = reliability_table(result)
+    assert table.columns[:4] == ("Factor", "Items", "Sum omega", "Omega hierarchical")
+    assert "Latent-response omega hierarchical (subscale for a specific factor)" in table.value_columns
+    assert table.value_columns[1] == "Bifactor part" and table.values[1][1] == "specific factor"
