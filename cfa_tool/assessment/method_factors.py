@@ -13,9 +13,16 @@ into the factor's part and the others', so the factor's share of its items' comm
 
 over its items i, with lambda the standardized loadings (explained common variance; Reise 2012, Rodriguez, Reise
 & Haviland 2016).  With correlated factors no such split exists and the share is not computed.
+
+Of these cross-cutting factors, one not declared a method factor that holds every item of two or more other trait
+factors and is uncorrelated with each of them is the general factor of a bifactor model (Holzinger & Swineford 1937;
+Reise 2012), and those factors are its specific factors (:func:`bifactor_parts`); the others are method factors,
+declared or not.
 """
 
 from __future__ import annotations
+
+from collections.abc import Collection
 
 import numpy as np
 
@@ -36,6 +43,24 @@ def cross_cutting_factors(loadings: dict[str, set[str]], declared: frozenset[str
         others = set().union(*(i for f, i in loadings.items() if f != factor))
         if factor in declared or items <= others:
             out.append(factor)
+    return out
+
+
+def bifactor_parts(loadings: dict[str, set[str]], declared: frozenset[str],
+                   uncorrelated: Collection[frozenset[str]]) -> dict[str, tuple[str, ...]]:
+    """The general factors of a bifactor structure with their specific factors: among the cross-cutting factors
+    (:func:`cross_cutting_factors`, the one rule), a factor not declared a method factor whose items include every
+    item of at least two other factors (not method factors either), each held uncorrelated with it (``uncorrelated``:
+    the pairs of factors whose correlation is zero), is a general factor (Holzinger & Swineford 1937; Reise 2012).
+    Empty when the model has none."""
+    out = {}
+    for factor in cross_cutting_factors(loadings, declared):
+        items = loadings[factor]
+        if factor in declared:
+            continue
+        specific = tuple(f for f, own in loadings.items() if f != factor and f not in declared and own and own < items)
+        if len(specific) >= 2 and all(frozenset((factor, f)) in uncorrelated for f in specific):
+            out[factor] = specific
     return out
 
 

@@ -16,6 +16,13 @@ covariance, Theta the residual covariances and k the keys:
   (McDonald 1999); for a higher-order or general factor this is omega hierarchical (Zinbarg,
   Revelle, Yovel & Li 2005);
 * omega total = 1 - k'Theta_I k / k'Sigma_I k: the share due to all factors;
+* in a bifactor model (assessment/method_factors.bifactor_parts) the same two formulas give, for the general factor,
+  omega hierarchical and omega total of the keyed sum of all its items, and for a specific factor, over its own
+  items, omega hierarchical subscale (the share of the keyed subscale sum's variance due to the specific factor
+  alone) and omega subscale (due to the general and the specific factor together; Rodriguez, Reise & Haviland
+  2016).  Composite reliability, whose denominator leaves out the other factor of the same items, describes no
+  score there and is not given; a general factor and its specific factors share their items, so whether they are
+  distinct is no question for the Fornell-Larcker comparison or HTMT, and they are not compared;
 * composite reliability (Joreskog 1971; Fornell & Larcker 1981) from standardized loadings l and
   residual variances e: (sum k l)^2 / ((sum k l)^2 + sum e);
 * average variance extracted: sum l^2 / (sum l^2 + sum e) (Fornell & Larcker 1981), which keys do
@@ -42,8 +49,16 @@ from enum import Enum
 
 import numpy as np
 
+from cfa_tool.assessment.method_factors import bifactor_parts
 from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices
+
+
+class BifactorPart(Enum):
+    """The part a factor plays in a bifactor structure (assessment/method_factors.bifactor_parts)."""
+
+    GENERAL = "general factor"
+    SPECIFIC = "specific factor"
 
 
 class Keying(Enum):
@@ -80,12 +95,21 @@ class FactorReliability:
     points_against: bool = False
     # half of the factor's items load each way: no majority gives its direction
     evenly_split: bool = False
+    # a bifactor model's general or specific factor (None otherwise), with the factors that share its items in that
+    # structure (a general factor's specific factors; a specific factor's general factor)
+    bifactor: BifactorPart | None = None
+    shares_items_with: tuple[str, ...] = ()
 
     def to_dict(self) -> dict:
         d = dict(vars(self))  # every field is a number, a word or a tuple of them, converted below
         for flag in ("points_against", "evenly_split"):
             if not getattr(self, flag):
                 del d[flag]  # written only when it warns
+        if self.bifactor is None:  # written only for a bifactor model, so that other models' results stay as they were
+            del d["bifactor"], d["shares_items_with"]
+        else:
+            d["bifactor"] = self.bifactor.value
+            d["shares_items_with"] = list(self.shares_items_with)
         d["items"] = list(self.items)
         d["reversed"] = list(self.reversed)
         d["keying"] = self.keying.value
@@ -187,11 +211,16 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         ave = lam_squares / (lam_squares + err)
         counts = direct.sum(axis=0)
         first_order = [j for j in range(m) if member[:, j].any() and latent[j] not in not_traits and not higher[j]]
+        general, shared = _bifactor(direct, corr_lat, higher, observed, latent, not_traits)
         # per factor, as lists read in the loop below: the largest |correlation| with another first-order factor
-        # (-inf with none) and whether sqrt(AVE) exceeds it (Fornell-Larcker)
+        # (-inf with none) and whether sqrt(AVE) exceeds it (Fornell-Larcker); a bifactor model's general and
+        # specific factors are not compared (the module docstring)
         others = np.zeros(m, dtype=bool)
         others[first_order] = True
-        largest_a = np.where(others[None, :] & ~np.eye(m, dtype=bool), np.abs(corr_lat), -np.inf).max(axis=1)
+        apart = np.array([[latent[b] in shared.get(latent[a], ()) for b in range(m)] for a in range(m)],
+                         dtype=bool).reshape(m, m)
+        compared = others[None, :] & ~np.eye(m, dtype=bool) & ~apart
+        largest_a = np.where(compared, np.abs(corr_lat), -np.inf).max(axis=1)
         largest_l, holds_l = largest_a.tolist(), (np.sqrt(ave) > largest_a).tolist()
         if S is not None:
             SK = S @ Kd
@@ -250,15 +279,21 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
                                              against_items))
             continue
         largest = holds = None
-        if len(first_order) > (j in first_order):  # another first-order factor to compare with
+        if compared[j].any():  # another first-order factor to compare with
             largest, holds = largest_l[j], holds_l[j]
-        results.append(FactorReliability(name, names, "first-order", omega_l[j], omega_total_l[j], None, cr_l[j],
-                                         ave_l[j], alpha_j, largest, holds, reversed_items, keying, mean, sd,
-                                         item_total, against_items, points_against=turned, evenly_split=tied))
+        part = (None if name not in shared else BifactorPart.GENERAL if name in general else BifactorPart.SPECIFIC)
+        results.append(FactorReliability(name, names, "first-order", omega_l[j], omega_total_l[j],
+                                         omega_l[j] if part is BifactorPart.GENERAL else None,
+                                         None if part is not None else cr_l[j], ave_l[j], alpha_j, largest, holds,
+                                         reversed_items, keying, mean, sd, item_total, against_items,
+                                         points_against=turned, evenly_split=tied, bifactor=part,
+                                         shares_items_with=shared.get(name, ())))
     htmt = []
     if S is not None:
         for a_pos, a in enumerate(first_order):
             for b in first_order[a_pos + 1:]:
+                if apart[a, b]:  # a general factor and one of its specific factors (the module docstring)
+                    continue
                 short = [latent[f] for f in (a, b) if counts_l[f] < 2]
                 if short:
                     htmt.append(Htmt(latent[a], latent[b], None, f"{' and '.join(short)} "
@@ -274,6 +309,22 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
                     htmt.append(Htmt(latent[a], latent[b], None, f"the keyed items of {' and '.join(weak)} do not "
                                      f"correlate positively on average, so the ratio is not defined"))
     return results, htmt
+
+
+def _bifactor(direct: np.ndarray, corr_lat: np.ndarray, higher: np.ndarray, observed: tuple[str, ...],
+              latent: tuple[str, ...], not_traits: frozenset[str]) -> tuple[set[str], dict[str, tuple[str, ...]]]:
+    """(general factors, the factors sharing items with each factor of a bifactor structure) by the one rule of
+    assessment/method_factors.bifactor_parts, from the loadings' pattern and the factors' zero correlations."""
+    m = len(latent)
+    loadings = {latent[j]: {observed[i] for i in np.nonzero(direct[:, j])[0]} for j in range(m) if not higher[j]}
+    zero = np.abs(np.nan_to_num(corr_lat, nan=1.0)) <= 1e-10
+    uncorrelated = {frozenset((latent[a], latent[b])) for a in range(m) for b in range(a + 1, m) if zero[a, b]}
+    parts = bifactor_parts(loadings, not_traits, uncorrelated)
+    shared: dict[str, tuple[str, ...]] = dict(parts)
+    for general, specific in parts.items():
+        for f in specific:
+            shared[f] = shared.get(f, ()) + (general,)
+    return set(parts), shared
 
 
 def _sum_score_mean(means: list[float], reversed_: list[bool], names: list[str],

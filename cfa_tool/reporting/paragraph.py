@@ -18,7 +18,8 @@ import math
 from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
-from cfa_tool.assessment.reliability import Keying
+from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors
+from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.data.answer_words import coding_described
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
@@ -107,15 +108,67 @@ def _test_phrase(test: FitTest) -> str:
     return f"{test.label} scaled chi-square test"
 
 
+def _factor_items(result) -> dict[str, set[str]]:
+    """Each factor's items (observed indicators), from the first group's loadings."""
+    label = result.groups[0].label if result.groups else None
+    out: dict[str, set[str]] = {}
+    for r in result.estimates:
+        if r.kind == "loading" and r.variables[1] in result.observed and r.group in (None, label):
+            out.setdefault(r.variables[0], set()).add(r.variables[1])
+    return out
+
+
+def _bifactor(result, d) -> dict[str, tuple[str, ...]]:
+    """The general factors of a bifactor structure with their specific factors (the one rule:
+    assessment.method_factors.bifactor_parts)."""
+    blocks = {f for factors, _, _ in d.exploratory for f in factors}
+    items = {f: x for f, x in _factor_items(result).items() if f not in blocks}
+    return bifactor_parts(items, frozenset(d.method_factors), {frozenset(p) for p in d.uncorrelated})
+
+
+def _unnamed_methods(result, d) -> list[str]:
+    """Factors not declared method factors whose every item loads on another factor too, other than a bifactor
+    model's (assessment.method_factors.cross_cutting_factors, the one rule): the shape of a method factor."""
+    blocks = {f for factors, _, _ in d.exploratory for f in factors}
+    items = {f: x for f, x in _factor_items(result).items() if f not in blocks}
+    parts = _bifactor(result, d)
+    nested = set(parts) | {f for specific in parts.values() for f in specific}
+    return [f for f in cross_cutting_factors(items, frozenset(d.method_factors))
+            if f not in d.method_factors and f not in nested]
+
+
+def _bifactor_structure(result, d, parts: dict[str, tuple[str, ...]], traits: list[str]) -> str:
+    """'a bifactor structure (...): a general factor (g) on 15 items and three specific factors (...), ...'"""
+    held = {frozenset(p) for p in d.uncorrelated}
+    items = _factor_items(result)
+    phrases = []
+    for general, specific in parts.items():
+        apart = all(frozenset((a, b)) in held for i, a in enumerate(specific) for b in specific[i + 1:])
+        n = len(items[general])
+        phrases.append(f"a general factor ({_name(general)}) on {'all ' if n == len(d.indicators) else ''}"
+                       f"{_count(n, 'item')} and {_count(len(specific), 'specific factor')} ({_names(specific)}), "
+                       f"each on its own part of those items and uncorrelated with the general factor"
+                       f"{' and with each other' if apart else ''}")
+    nested = set(parts) | {f for specific in parts.values() for f in specific}
+    rest = [f for f in traits if f not in nested]
+    text = f"a bifactor structure (Holzinger & Swineford, 1937; Reise, 2012), {_list(phrases)}"
+    if rest:
+        text += f", and {_count(len(rest), 'other factor')} ({_names(rest)})"
+    return text + ","
+
+
 def _structure(result, d) -> str:
     methods = set(d.method_factors)
     traits = [f for f in d.first_order if f not in methods]
     n_first = len(traits)
+    parts = _bifactor(result, d)
     noun = "trait factor" if methods else "factor"
     held = {frozenset(p) for p in d.uncorrelated}
     pairs = [frozenset((a, b)) for i, a in enumerate(traits) for b in traits[i + 1:]]
     if n_first == 0:
         factors = ""
+    elif parts:
+        factors = _bifactor_structure(result, d, parts, traits)
     elif n_first == 1:
         factors = f"one {noun} ({_name(traits[0])})"
     else:
@@ -128,7 +181,7 @@ def _structure(result, d) -> str:
         factors = f"{_count(n_first, kind[:-1], kind)} ({_names(traits)})"
     if methods:
         named = [f for f in d.first_order if f in methods]
-        factors += f" and {_count(len(named), 'method factor')} ({_names(named)})"
+        factors += f"{',' if parts else ''} and {_count(len(named), 'method factor')} ({_names(named)})"
     if d.exploratory:  # each part with its own items: a block's, and the confirmatory factors'
         parts = [f"{_count(len(d.confirmatory_indicators), 'indicator')} of {factors}"] if factors else []
         parts += [f"{_count(len(items), 'indicator')} of {_count(len(f), 'exploratory factor')} ({_names(f)})"
@@ -252,12 +305,16 @@ def _block_sentences(result, d) -> str:
     return " ".join(out)
 
 
-def _departures(d) -> str:
+def _departures(d, general: dict[str, tuple[str, ...]] | None = None, unnamed: list[str] | None = None) -> str:
+    """The departures from simple structure; ``general``: a bifactor model's general factors with their specific
+    factors, and ``unnamed``: undeclared factors of a method factor's shape (:func:`_unnamed_methods`), whose loadings
+    are no cross-loadings and whose zero correlations the structure's sentence states."""
     parts = []
-    methods = set(d.method_factors)
+    general = general or {}
+    methods = set(d.method_factors) | set(general) | set(unnamed or ())
     for item, factors in d.cross_loadings:
         if sum(f not in methods for f in factors) > 1:  # a loading on a method factor is not a cross-loading
-            parts.append(f"a cross-loading of {_name(item)} (on {_names(factors)})")
+            parts.append(f"a cross-loading of {_name(item)} (on {_names([f for f in factors if f not in methods])})")
     if d.residual_covariances:
         n = len(d.residual_covariances)
         parts.append(f"{_count(n, 'residual covariance')} ({_list([_pair(p) for p in d.residual_covariances])})")
@@ -272,11 +329,24 @@ def _departures(d) -> str:
         sentences.append(f"The {'factors' if many else 'factor'} {_names(d.method_factors)} "
                          f"{'stand' if many else 'stands'} for a way of answering, not a trait: "
                          f"{'they get' if many else 'it gets'} no reliability or discriminant-validity coefficients.")
-
-    if d.uncorrelated:
-        pairs = _list([f"{_name(a)} and {_name(b)}" for a, b in d.uncorrelated])
-        sentences.append(f"The covariance{'s' if len(d.uncorrelated) > 1 else ''} of {pairs} "
-                         f"{'were' if len(d.uncorrelated) > 1 else 'was'} fixed at zero.")
+    for factor in unnamed or ():
+        items = [x for x, factors in d.cross_loadings if factor in factors]
+        sentences.append(f"The factor {_name(factor)} loads only on items that load on other factors too "
+                         f"({_names(items)}), as a method factor does (what items share in the way they are "
+                         f"answered, such as their wording; Marsh, 1996); it was not declared a method factor, so it "
+                         f"was treated as a trait.")
+    stated = set()  # the zero correlations the bifactor structure's sentence states
+    held = {frozenset(p) for p in d.uncorrelated}
+    for g, specific in general.items():
+        stated |= {frozenset((g, f)) for f in specific}
+        among = {frozenset((a, b)) for i, a in enumerate(specific) for b in specific[i + 1:]}
+        if among <= held:
+            stated |= among
+    uncorrelated = [p for p in d.uncorrelated if frozenset(p) not in stated]
+    if uncorrelated:
+        pairs = _list([f"{_name(a)} and {_name(b)}" for a, b in uncorrelated])
+        sentences.append(f"The covariance{'s' if len(uncorrelated) > 1 else ''} of {pairs} "
+                         f"{'were' if len(uncorrelated) > 1 else 'was'} fixed at zero.")
     for group in d.equal:
         sentences.append(f"{_capital(_list([_parameter(r, d) for r in group]))} were constrained to be equal.")
     if d.fixed:
@@ -548,18 +618,26 @@ def _reliability_sentence(result) -> str:
         return (f"The reliability of the factors' keyed sums of the answers' codes (the omega of the observed sum, from "
                 f"the fitted thresholds, loadings and factor variances; Green & Yang, 2009) was {values}"
                 f"{_keyed_sum_words(found)}.")
-    first = [r for r in rows if r.level != "higher-order" and shown(r.omega)]
-    higher = [r for r in rows if r.level == "higher-order" and shown(r.omega_hierarchical)]
+    first = [r for r in rows if r.level != "higher-order" and r.bifactor is None and shown(r.omega)]
+    higher = [r for r in rows if (r.level == "higher-order" or r.bifactor is BifactorPart.GENERAL)
+              and shown(r.omega_hierarchical)]
+    specific = [r for r in rows if r.bifactor is BifactorPart.SPECIFIC and shown(r.omega)]
     parts = []
     if first:
         parts.append(f"omega (McDonald, 1999) was {_list([f'{unit(r.omega, 2)} for {_name(r.factor)}' for r in first])}")
     if higher:
-        parts.append("omega hierarchical (Zinbarg, Revelle, Yovel & Li, 2005) was "
+        general = any(r.bifactor is BifactorPart.GENERAL for r in higher)
+        parts.append("omega hierarchical (Zinbarg, Revelle, Yovel & Li, 2005"
+                     + ("; Rodriguez, Reise & Haviland, 2016" if general else "") + ") was "
                      + _list([f"{unit(r.omega_hierarchical, 2)} for {_name(r.factor)}" for r in higher]))
+    if specific:
+        parts.append("omega hierarchical subscale, the share of a specific factor's keyed subscale sum due to that "
+                     "factor beyond the general factor (Rodriguez, Reise & Haviland, 2016), was "
+                     + _list([f"{unit(r.omega, 2)} for {_name(r.factor)}" for r in specific]))
     if not parts:
         return ""
     return (f"For the reliability of the factors' keyed sum scores, {'; '.join(parts)}"
-            f"{_keyed_sum_words(first + higher)}.")
+            f"{_keyed_sum_words(first + higher + specific)}.")
 
 
 def _factor_means_sentence(result) -> str:
@@ -619,7 +697,7 @@ def methods_paragraph(result) -> str:
         parts += _scale_sentences(d, result.problems)
         if d.exploratory:
             parts.append(_block_sentences(result, d))
-        departures = _departures(d)
+        departures = _departures(d, _bifactor(result, d), _unnamed_methods(result, d))
         if departures:
             parts.append(departures)
         if d.invariant:
@@ -715,7 +793,7 @@ def _model_sentences(name: str, result) -> str:
     if d is None:
         return f"{name} had {_count(len(result.observed), 'indicator')}."
     parts = [f"{name} had {_structure(result, d).rstrip(',')}."] + _scale_sentences(d, result.problems)
-    departures = _departures(d)
+    departures = _departures(d, _bifactor(result, d), _unnamed_methods(result, d))
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))
     if result.multigroup:  # what distinguishes grouped models: their equalities across groups
@@ -947,7 +1025,7 @@ def invariance_paragraph(result, levels) -> str:
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
                      f"{_name(result.groups[0])} were fixed at zero.")
         parts += _scale_sentences(d, getattr(result, "data_problems", ()))
-        departures = _departures(d)
+        departures = _departures(d, _bifactor(first, d), _unnamed_methods(first, d))
         if departures:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))
     coding = answer_coding_sentence(first.data)

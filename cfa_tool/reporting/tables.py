@@ -8,7 +8,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from cfa_tool.assessment.fit_indices import GUIDE_VALUES
-from cfa_tool.assessment.reliability import Keying
+from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
@@ -655,11 +655,24 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
              "responses behind the items, which no one observes; they usually run higher than the sum's reliability, "
              "most with few categories. "
              if ordinal else "") + keying_sentence(rows) +
-            "Omega: share of the " + ("variance of the keyed sum of the latent responses" if ordinal else
+            ("Omega hierarchical" if any(r.bifactor is not None for r in rows) else "Omega") + ": share of the " + ("variance of the keyed sum of the latent responses" if ordinal else
                                       "keyed item sum's variance") + " due "
             "to the factor (for a higher-order factor: omega hierarchical); omega total: due to all factors; alpha "
             "from the " + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
             + ("composite" if ordinal else "composite reliability") + " from the standardized loadings.")
+    if any(r.bifactor is not None for r in rows):
+        columns = [("Omega hierarchical", "r") if c == ("Omega", "r") else c for c in columns]
+        for row, r in zip(body, rows):
+            if r.bifactor is BifactorPart.SPECIFIC:
+                row[0] = f"{r.factor} (subscale)"
+        renamed = {"Omega": "Omega hierarchical (subscale for a specific factor)",
+                   "Latent-response omega": "Latent-response omega hierarchical (subscale for a specific factor)",
+                   "Omega total": "Omega total (omega subscale for a specific factor)",
+                   "Latent-response omega total": "Latent-response omega total (subscale for a specific factor)"}
+        names = ["Factor", "Bifactor part", *[renamed.get(n, n) for n in names[1:]]]
+        values = [row[:1] + [r.bifactor.value if r.bifactor is not None else None] + row[1:]
+                  for row, r in zip(values, rows)]
+        note += " " + bifactor_reliability_sentence(rows)
     single = one_item_factors(result.estimates, result.observed)
     note += one_item_sentence(single, "reliability coefficients",
                               f"no coefficients are shown, and {'it takes' if len(single) == 1 else 'they take'} no "
@@ -672,6 +685,21 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
                                                      "latent responses)" if ordinal else "")
     return _table(f"reliability_{group}", title, columns, body, _unusable(result) + note,
                   _all_if_unusable(result, body), values=(names, values))
+
+
+def bifactor_reliability_sentence(rows) -> str:
+    """What the omega columns hold for a bifactor model's general and specific factors (assessment.reliability)."""
+    general = [r.factor for r in rows if r.bifactor is BifactorPart.GENERAL]
+    specific = [r.factor for r in rows if r.bifactor is BifactorPart.SPECIFIC]
+    return (f"Bifactor model (a general factor on every item of specific factors, uncorrelated with them; Holzinger & "
+            f"Swineford 1937; Reise 2012): for the general factor{'s' if len(general) > 1 else ''} "
+            f"{word_list(general)}, omega hierarchical is the share of the keyed sum of all {'their' if len(general) > 1 else 'its'} "
+            f"items due to the general factor alone and omega total the share due to all factors; for the specific "
+            f"factors {word_list(specific)} (marked 'subscale'), computed on each one's own items, omega hierarchical "
+            f"subscale is the share of the keyed subscale sum due to the specific factor alone, beyond the general "
+            f"factor, and omega subscale (in the omega total column) the share due to both (Rodriguez, Reise & Haviland "
+            f"2016). Composite reliability is not given for them: its denominator leaves out the other factor of the "
+            f"same items, so it describes no score.")
 
 
 def _unusable(result) -> str:
@@ -701,9 +729,17 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
     body, reasons, numbers = [], [], []
     names = list(traits)
     parameters_are_correlations = not higher_order(result)  # otherwise the factors' correlations are implied ones
+    nested, fixed, other_scale = [], [], set()
     for i, a in enumerate(names):
         for b in names[i + 1:]:
+            if b in traits[a].shares_items_with:  # a general factor and one of its specific factors
+                nested.append((a, b))
+                continue
             row = correlations.get(frozenset((a, b)))
+            if parameters_are_correlations and (row is None or not row.free):  # 'uncorrelated' leaves none
+                fixed.append((a, b))
+            elif row is not None:
+                other_scale |= {a, b} - unit_variance
             implied = implied_factor_correlation(result, group, a, b)
             r = implied if implied is not None else (row.standardized if row is not None else 0.0)
             interval = ""
@@ -726,20 +762,43 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
             "Larcker 1981).")
     columns = [("Factor", "l"), ("Factor", "l"), ("r", "r"), ("95% CI", "r"), ("HTMT", "r"), ("AVE", "r"),
                ("sqrt(AVE) > |r|", "l")]
-    if not any(row[3] for row in body):  # no interval to show (factors scaled by a marker or effects coding)
+    if not any(row[3] for row in body):  # no interval to show (fixed correlations, or factors scaled otherwise)
         columns.pop(3)
         body = [row[:3] + row[4:] for row in body]
-        note += (" No interval of r is shown: none of these correlations is a parameter of the model (it is one when "
-                 "both factors are scaled by their variances, as 'scale latent by variance' in the model does).")
+        note += " No interval of r is shown: " + _no_interval_reasons(fixed, other_scale, not parameters_are_correlations)
     else:
         note += (" The interval of a correlation is shown when both factors are scaled by their variances (then their "
                  "covariance is the correlation).")
     if reasons:
         note += " " + " ".join(reasons)
+    if nested:
+        note += (f" Not compared: {word_list([f'{a} with {b}' for a, b in nested])}. A general factor and its specific "
+                 f"factors (a bifactor model) measure the same items, the specific factors what the items share beyond "
+                 f"the general factor, so whether they are distinct is not a question these comparisons can answer.")
+    if not body:
+        return None
     return _table(f"distinct_{group}", "Are the factors distinct?", columns, body, _unusable(result) + note,
                   _all_if_unusable(result, body),
                   values=(["Factor", "Factor", "r", "95% CI lower", "95% CI upper", "HTMT", "AVE (first)", "AVE (second)",
                            "sqrt(AVE) > |r|"], numbers))
+
+
+def _no_interval_reasons(fixed: list[tuple[str, str]], other_scale: set[str], implied: bool) -> str:
+    """Why no correlation of the distinct table has an interval: the model fixes them, a higher-order factor implies
+    them, or some factors are scaled otherwise than by their variances (the only case the advice to scale by
+    variance fits, so that it never asks for what the model already does)."""
+    parts = []
+    if fixed:
+        parts.append(f"the correlation{'s' if len(fixed) > 1 else ''} of "
+                     f"{word_list([f'{a} and {b}' for a, b in fixed])} {'are' if len(fixed) > 1 else 'is'} fixed by the "
+                     f"model, not estimated")
+    if implied:
+        parts.append("the correlations of factors below a higher-order factor are implied by it, not parameters")
+    elif other_scale:
+        parts.append(f"a correlation is a parameter of the model only when both factors are scaled by their variances "
+                     f"('scale latent by variance'), and {word_list(sorted(other_scale))} "
+                     f"{'are' if len(other_scale) > 1 else 'is'} scaled otherwise")
+    return "; ".join(parts) + "." if parts else "none of these correlations is a parameter of the model."
 
 
 def keying_sentence(rows) -> str:
@@ -1052,10 +1111,12 @@ def normality_lines(result) -> list[str]:
         lines.append(line)
     if not lines and result.method.full_information and not result.method.ordinal:
         # said, not silently left out: both need every row complete
+        guarded = (f", and {Remedy.ROBUST.said()} guard the test and the standard errors against non-normal answers "
+                   f"either way" if result.robust is None else
+                   "; the scaled test and robust standard errors of this fit guard against non-normal answers either "
+                   "way")  # advice never asks for what the fit already does
         lines.append("Mardia's tests of multivariate normality need complete rows, so with full-information ML they "
-                     f"are not computed; {Remedy.COMPLETE_ROWS.said()} gives them for those rows, and "
-                     f"{Remedy.ROBUST.said()} guard the test and the standard errors against non-normal "
-                     "answers either way.")
+                     f"are not computed; {Remedy.COMPLETE_ROWS.said()} gives them for those rows{guarded}.")
     return lines
 
 
