@@ -781,10 +781,19 @@ def _ordinal_power_lines(result) -> list[str]:
 
 
 def _inadmissible_phrase(results) -> str:
-    """How many converged replications had a negative variance estimate, per sample size; they are kept."""
+    """How many converged replications have a solution that is not admissible, per sample size; they are kept."""
     counts = ", ".join(f"{r.inadmissible}" + (f" at N = {r.n_obs}" if len(results) > 1 else "") for r in results)
-    return (f"converged replications with a negative variance estimate (inadmissible): {counts}; they are included in "
-            f"the power, coverage and bias figures")
+    return (f"converged replications whose solution is not admissible (as a single fit would judge it): {counts}; they "
+            f"are included in the power, coverage and bias figures")
+
+
+def _inadmissible_cautions(results) -> tuple[str, ...]:
+    """A caution, first, per sample size at which some converged replications are not admissible, naming their
+    problems (assessment.admissibility.counted_problems)."""
+    return tuple(f"{r.inadmissible} of the {r.converged} converged replications" + (f" at N = {r.n_obs}" if len(
+        results) > 1 else "") + f" have a solution that is not admissible, as a single fit would judge it "
+        f"({getattr(r, 'inadmissible_named', '') or 'problems not recorded'}); they are included in the power, coverage "
+        f"and bias figures, which therefore describe such solutions too" for r in results if r.inadmissible)
 
 
 def not_carried_line(not_carried, power: bool = True) -> list[str]:
@@ -835,7 +844,8 @@ def montecarlo_report(result) -> Report:
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
-                  None, tuple(lines), (table, *_population_of(result)), warnings=few_replications(result.replications))
+                  _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *_population_of(result)),
+                  warnings=few_replications(result.replications))
 
 
 def _population_of(result) -> tuple[ReportTable, ...]:
@@ -882,8 +892,8 @@ def power_curve_report(curve) -> Report:
                    "values, mean estimates and SDs are in the JSON result.",
                    values=([h for h, _ in heads], values))
     return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {first.replications} replications "
-                                               f"per size (seed {first.seed})", None, tuple(lines),
-                  (table, trust, *_population_of(first)),
+                                               f"per size (seed {first.seed})",
+                  _notice([], _inadmissible_cautions(curve.results)), tuple(lines), (table, trust, *_population_of(first)),
                   warnings=few_replications(first.replications))
 
 

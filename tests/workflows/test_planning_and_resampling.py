@@ -374,9 +374,37 @@ def test_power_simulation_counts_negative_variance_estimates():
     result = monte_carlo_power(spec, n, replications=400, seed=3, workers=1)
     expected = share * result.converged
     assert abs(result.inadmissible - expected) < 4 * np.sqrt(expected * (1 - share))
-    assert f"(inadmissible): {result.inadmissible};" in " ".join(report_of(result).lines[0].split())
+    assert f"(as a single fit would judge it): {result.inadmissible};" in " ".join(report_of(result).lines[0].split())
     assert result.to_dict()["inadmissible"] == result.inadmissible
     assert monte_carlo_power(spec, 3000, replications=20, seed=3, workers=1).inadmissible == 0
+    # held at a bound of zero instead ('bound variance(y4) >= 0'), the same samples' estimates are inadmissible as a
+    # fit judges one held at its bound: the mass at the boundary is the share that would fall below it (Self & Liang
+    # 1987), so the same count as without the bound, named first in the report (hostile trial: it counted none)
+    bounded = monte_carlo_power(parse_model("\n".join(spec.lines) + "\nbound variance(y4) >= 0\n"), n, replications=400, seed=3,
+                                workers=1)
+    assert abs(bounded.inadmissible - expected) < 4 * np.sqrt(expected * (1 - share))
+    assert abs(bounded.inadmissible - result.inadmissible) <= 2
+    assert bounded.inadmissible_named == f"the residual variance of y4 held at a bound in {bounded.inadmissible}"
+    notice = report_of(bounded).notice
+    assert notice is not None and not notice.inadmissible
+    assert f"{bounded.inadmissible} of the {bounded.converged} converged replications" in notice.lines[0]
+    assert "negative residual variance (the residual variance of y4)" in result.inadmissible_named
+
+
+def test_a_population_beyond_the_models_own_bound_is_refused():
+    # the start values of a simulation are the population's: one that the model's own bound forbids would hold every
+    # replication's estimate at the bound (hostile trial: coverage 0%, an SE bias of 1e18 %, said without a word)
+    from cfa_tool.errors import ModelError
+
+    spec = parse_model("factor f: y1, y2, y3, y4\nbound variance(y4) <= 0.1\nstart variance(y4) = 0.9\n")
+    with pytest.raises(ModelError, match=r"0.9 of variance\(y4\).*outside the model's own bound on it \(at most "
+                                         r"0.1, line 2\)") as caught:
+        monte_carlo_power(spec, 300, replications=5, workers=1)
+    assert caught.value.location.line == 3
+    with pytest.raises(ModelError, match="outside the model's own bound"):
+        simulate(spec, 50)
+    population_from_spec(parse_model("factor f: y1, y2, y3, y4\nbound variance(y4) <= 0.1\n"
+                                      "start variance(y4) = 0.05\n"))  # within the bound: taken
 
 
 def test_the_power_report_says_what_the_plan_assumes_and_what_ordinal_items_change(tmp_path):
