@@ -380,7 +380,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     notes: list[str] = list(loaded.notes)
     keep = api.keep_option(keep)
     if keep:
-        frame, filter_notes = apply_filters(frame, [parse_filter(k) for k in keep], source, loaded.value_labels)
+        frame, filter_notes, _ = apply_filters(frame, [parse_filter(k) for k in keep], source, loaded.value_labels)
         notes += filter_notes
     chosen = item_names(items, columns, source)
     if chosen is None:
