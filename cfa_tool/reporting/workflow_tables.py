@@ -695,7 +695,7 @@ def cutoffs_report(cut) -> Report:
             reading = f"none at N = {cut.n_obs:,}" + ("; one exists " + ", or ".join(found) if found else
                                                       "; none either at 16 times this N or 3 times the misspecification")
         else:
-            reading = "beyond the cutoff: misfit at least that large is likely" if c.beyond else "within the cutoff"
+            reading = CUTOFF_BEYOND if c.beyond else CUTOFF_WITHIN
         rows.append([c.index.upper(), f"{100 * c.level:.0f}%", unit(c.cutoff) if c.cutoff is not None else "",
                      unit(c.observed), reading])
         values.append([c.index.upper(), c.level, c.cutoff, c.observed, reading])
@@ -708,7 +708,7 @@ def cutoffs_report(cut) -> Report:
                      f"{', '.join(map(str, N_STEPS))} times this N and {', '.join(f'{s:g}' for s in SIZE_STEPS)} times "
                      f"the misspecification, not by extrapolating.")
     table = _table("cutoffs", "Cutoffs", [("Index", "l"), ("Level", "r"), ("Cutoff", "r"), ("This model", "r"),
-                                          ("Reading", "l")], rows,
+                                          ("Reading", "l")], rows, cutoff_meaning(cut.misspecification),
                    values=(["Index", "Level", "Cutoff", "This model", "Reading"], values))
     left_out = _left_out(result) if cut.pattern_rows is None else ""  # the gaps carried over: said below
     lines = (f"{cut.replications} samples of N = {cut.n_obs}{left_out} from the fitted model and from the model with "
@@ -727,10 +727,27 @@ def cutoffs_report(cut) -> Report:
             lines += (f"That test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
                       f"{cut.converged_correct} samples drawn from it (nominal 5%).",)
     few = few_draws(cut.replications, 0.05, "samples", "the cutoffs")
+    # the fit's notes on its rows (rows left out, rows with gaps) first, beside the notes on the estimation
     return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", _fit_notice(result), lines,
-                  (table,), tuple(notes) + tuple(result.warnings), ("These cutoffs hold for this model, sample size and kind of misspecification "
+                  (table,), tuple(notes), ("These cutoffs hold for this model, sample size and kind of misspecification "
                                            "only; they are guides, not laws.", HIGH_STAKES_NOTE),
-                  warnings=(few,) if few else ())
+                  warnings=tuple(result.warnings) + ((few,) if few else ()))
+
+
+#: how a fit index on either side of a simulated cutoff reads (McNeish & Wolf 2023): the cutoff is a value that most
+#: samples of a model misspecified by the stated amount pass, so a value within it makes misfit that large unlikely,
+#: and a value beyond it only fails to rule it out (a smaller misspecification, or another kind, can give it too)
+CUTOFF_BEYOND = "beyond: misfit that large is not ruled out"
+CUTOFF_WITHIN = "within: misfit that large is unlikely"
+
+
+def cutoff_meaning(misspecification: str) -> str:
+    """The note under the cutoffs: what a cutoff at a level means, and so what either side of it says."""
+    return (f"A cutoff at 95% is a value that 95% of the samples from the model with {misspecification} left out "
+            f"fall beyond, and at most 5% of the samples from the fitted model do (likewise at 90%; McNeish & Wolf "
+            f"2023). A value within it is one such a misspecified model seldom gives, so misfit that large is "
+            f"unlikely; a value beyond it is what such a model gives in most samples, which does not show that misfit "
+            f"that large is present (a smaller misspecification, or another kind, can give it too).")
 
 
 # ---------------------------------------------------------------- power

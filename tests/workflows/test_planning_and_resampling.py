@@ -446,3 +446,32 @@ def test_sample_sizes_are_tabled_from_the_smallest_whatever_the_order_typed():
     assert options.sample_sizes([300, 100]) == (100, 300)
     with pytest.raises(OptionError, match="the sample size 50 is given twice"):
         options.sample_sizes("200,50,50")
+
+
+def test_the_cutoff_reading_says_what_a_simulated_cutoff_means_and_rows_left_out_come_first(hs_data):
+    # a cutoff at 95% is a value 95% of the misspecified model's samples pass (McNeish & Wolf 2023): a value beyond it
+    # does not make misfit that large 'likely' (new-user trial), it fails to rule it out; and the rows listwise
+    # deletion left out (counted by pandas) came after the cautions at the very end
+    from cfa_tool.reporting.reports import report_of
+    from cfa_tool.reporting.workflow_tables import CUTOFF_BEYOND, CUTOFF_WITHIN
+
+    data = hs_data.copy()
+    data.loc[data.index[::7], "x4"] = np.nan
+    left_out = int(data["x4"].isna().sum())
+    cut = cfa_tool.cutoffs(THREE_FACTORS, data, replications=30, seed=2, workers=1, missing="listwise")
+    report = report_of(cut)
+    assert report.warnings[0].startswith(f"Listwise deletion left out {left_out} of {len(data)} rows")
+    assert not any(f"left out {left_out} of" in note for note in report.notes)
+    readings = {(c.index.upper(), f"{100 * c.level:.0f}%"): c for c in cut.cutoffs}
+    checked = 0
+    for row in report.tables[0].rows:
+        c = readings[(row[0], row[1])]
+        if c.cutoff is None:
+            continue
+        misfit_side = c.observed < c.cutoff if c.index == "cfi" else c.observed > c.cutoff  # the rule's two sides
+        assert row[-1] == (CUTOFF_BEYOND if misfit_side else CUTOFF_WITHIN)
+        checked += 1
+    assert checked  # at least one cutoff exists with these seeds
+    assert "likely" not in " ".join(r[-1] for r in report.tables[0].rows).replace("unlikely", "")
+    assert "95% of the samples from the model with" in report.tables[0].note
+    assert "does not show that misfit that large is present" in report.tables[0].note
