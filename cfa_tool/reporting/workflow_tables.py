@@ -661,8 +661,11 @@ def bootstrap_report(boot) -> Report:
                             "Percentile upper", *([] if ordinal else ["BCa lower", "BCa upper"])], values))
     few = few_draws(boot.converged, 0.025, "converged resamples", "the interval ends" + (
         " and the Bollen-Stine p-value" if boot.bollen_stine_p is not None else ""))
+    kept = (f"{boot.inadmissible} of the {boot.converged} converged resamples have a solution that is not admissible, "
+            f"as a single fit would judge it ({boot.inadmissible_named}); they are kept in the intervals, which are of "
+            f"the estimates' sampling distribution, such solutions included",) if boot.inadmissible else ()
     return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines), (table,),
-                  tuple(result.warnings), (HIGH_STAKES_NOTE,), warnings=(few,) if few else ())
+                  tuple(result.warnings), (HIGH_STAKES_NOTE,), warnings=kept + ((few,) if few else ()))
 
 
 #: fewer draws than this beyond a percentile make it move with the seed (a rule of thumb of this program)

@@ -475,3 +475,29 @@ def test_the_cutoff_reading_says_what_a_simulated_cutoff_means_and_rows_left_out
     assert "likely" not in " ".join(r[-1] for r in report.tables[0].rows).replace("unlikely", "")
     assert "95% of the samples from the model with" in report.tables[0].note
     assert "does not show that misfit that large is present" in report.tables[0].note
+
+
+def test_bootstrap_counts_resamples_whose_solution_is_not_admissible():
+    # an item whose residual variance is near zero (.05 in the population, N = 80): its estimate falls below zero in
+    # a share of resamples near Phi(-estimate / SE) (the estimate's asymptotic normal distribution, by scipy); held
+    # at a bound of zero instead, the same resamples hold it there, which a fit calls not admissible as well
+    from scipy import stats
+
+    from cfa_tool.reporting.reports import report_of
+
+    model = "factor f: y1, y2, y3, y4\n"
+    spec = parse_model(model + "start variance(f) = 0.9\nstart loading(f, y2), loading(f, y3) = 0.7\n"
+                               "start loading(f, y4) = 1\nstart variance(y4) = 0.05\n"
+                               "start variance(y1), variance(y2), variance(y3) = 0.5\n")
+    data = simulate(spec, 80, seed=5).frame
+    row = next(r for r in cfa_tool.fit(model, data).estimates if r.kind == "residual_variance"
+               and r.variables == ("y4",))
+    free = cfa_tool.bootstrap(model, data, replications=200, seed=4, workers=1)
+    bounded = cfa_tool.bootstrap(model + "bound variance(y4) >= 0\n", data, replications=200, seed=4, workers=1)
+    assert free.inadmissible / free.converged == pytest.approx(stats.norm.cdf(-row.estimate / row.se), abs=0.1)
+    assert abs(bounded.inadmissible - free.inadmissible) <= 2
+    assert free.inadmissible_named == f"negative residual variance (the residual variance of y4) in {free.inadmissible}"
+    assert bounded.inadmissible_named == f"the residual variance of y4 held at a bound in {bounded.inadmissible}"
+    assert report_of(bounded).warnings[0].startswith(f"{bounded.inadmissible} of the {bounded.converged} converged "
+                                                     f"resamples have a solution that is not admissible")
+    assert bounded.to_dict()["result"]["inadmissible"] == bounded.inadmissible
