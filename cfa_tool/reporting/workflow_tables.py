@@ -730,11 +730,16 @@ def cutoffs_report(cut) -> Report:
             lines += (f"That test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
                       f"{cut.converged_correct} samples drawn from it (nominal 5%).",)
     few = few_draws(cut.replications, 0.05, "samples", "the cutoffs")
+    judged = [f"{count} of the {converged} converged samples from the {whose} ({named})" for (count, named), converged, whose
+              in zip(cut.inadmissible, (cut.converged_correct, cut.converged_misspecified),
+                     ("fitted model", "misspecified model")) if count]
+    kept = (f"{' and '.join(judged)} have a solution that is not admissible, as a single fit would judge it; they are "
+            f"kept in the distributions the cutoffs come from",) if judged else ()
     # the fit's notes on its rows (rows left out, rows with gaps) first, beside the notes on the estimation
     return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", _fit_notice(result), lines,
                   (table,), tuple(notes), ("These cutoffs hold for this model, sample size and kind of misspecification "
                                            "only; they are guides, not laws.", HIGH_STAKES_NOTE),
-                  warnings=tuple(result.warnings) + ((few,) if few else ()))
+                  warnings=tuple(result.warnings) + kept + ((few,) if few else ()))
 
 
 #: how a fit index on either side of a simulated cutoff reads (McNeish & Wolf 2023): the cutoff is a value that most

@@ -501,3 +501,25 @@ def test_bootstrap_counts_resamples_whose_solution_is_not_admissible():
     assert report_of(bounded).warnings[0].startswith(f"{bounded.inadmissible} of the {bounded.converged} converged "
                                                      f"resamples have a solution that is not admissible")
     assert bounded.to_dict()["result"]["inadmissible"] == bounded.inadmissible
+
+
+def test_cutoffs_count_samples_whose_solution_is_not_admissible():
+    # a fit whose residual variance of y4 is held at its bound of zero: the samples drawn from the fitted model have
+    # that parameter on the boundary, where an estimate lands on the bound in about half of the samples (Self &
+    # Liang 1987); a fit calls such a solution not admissible, and the cutoffs' report now says how many samples so
+    from cfa_tool.assessment.admissibility import ProblemKind
+    from cfa_tool.reporting.reports import report_of
+
+    model = "factor f: y1, y2, y3, y4\n"
+    spec = parse_model(model + "start variance(f) = 0.9\nstart loading(f, y2), loading(f, y3) = 0.7\n"
+                               "start loading(f, y4) = 1\nstart variance(y4) = 0.05\n"
+                               "start variance(y1), variance(y2), variance(y3) = 0.5\n")
+    data = simulate(spec, 80, seed=5).frame
+    cut = cfa_tool.cutoffs(model + "bound variance(y4) >= 0\n", data, replications=100, seed=2, workers=1)
+    assert any(p.kind is ProblemKind.ON_BOUND for p in cut.fit.problems)
+    (count, named), _ = cut.inadmissible
+    assert count / cut.converged_correct == pytest.approx(0.5, abs=0.15)  # 4 binomial SDs of 100 samples
+    assert named == f"the residual variance of y4 held at a bound in {count}"
+    assert any(w.startswith(f"{count} of the {cut.converged_correct} converged samples from the fitted model")
+               for w in report_of(cut).warnings)
+    assert cut.to_dict()["result"]["inadmissible_correct"] == count
