@@ -477,6 +477,16 @@ def test_the_cutoff_reading_says_what_a_simulated_cutoff_means_and_rows_left_out
     assert "does not show that misfit that large is present" in report.tables[0].note
 
 
+NEAR_ZERO_MODEL = "factor f: y1, y2, y3, y4\n"
+
+
+def _near_zero_rows():
+    """80 rows of NEAR_ZERO_MODEL whose item y4 has a residual variance near zero (.05; invented population values)."""
+    return simulate(parse_model(NEAR_ZERO_MODEL + "start variance(f) = 0.9\nstart loading(f, y2), loading(f, y3) = 0.7\n"
+                                "start loading(f, y4) = 1\nstart variance(y4) = 0.05\n"
+                                "start variance(y1), variance(y2), variance(y3) = 0.5\n"), 80, seed=5).frame
+
+
 def test_bootstrap_counts_resamples_whose_solution_is_not_admissible():
     # an item whose residual variance is near zero (.05 in the population, N = 80): its estimate falls below zero in
     # a share of resamples near Phi(-estimate / SE) (the estimate's asymptotic normal distribution, by scipy); held
@@ -485,11 +495,7 @@ def test_bootstrap_counts_resamples_whose_solution_is_not_admissible():
 
     from cfa_tool.reporting.reports import report_of
 
-    model = "factor f: y1, y2, y3, y4\n"
-    spec = parse_model(model + "start variance(f) = 0.9\nstart loading(f, y2), loading(f, y3) = 0.7\n"
-                               "start loading(f, y4) = 1\nstart variance(y4) = 0.05\n"
-                               "start variance(y1), variance(y2), variance(y3) = 0.5\n")
-    data = simulate(spec, 80, seed=5).frame
+    model, data = NEAR_ZERO_MODEL, _near_zero_rows()
     row = next(r for r in cfa_tool.fit(model, data).estimates if r.kind == "residual_variance"
                and r.variables == ("y4",))
     free = cfa_tool.bootstrap(model, data, replications=200, seed=4, workers=1)
@@ -510,11 +516,7 @@ def test_cutoffs_count_samples_whose_solution_is_not_admissible():
     from cfa_tool.assessment.admissibility import ProblemKind
     from cfa_tool.reporting.reports import report_of
 
-    model = "factor f: y1, y2, y3, y4\n"
-    spec = parse_model(model + "start variance(f) = 0.9\nstart loading(f, y2), loading(f, y3) = 0.7\n"
-                               "start loading(f, y4) = 1\nstart variance(y4) = 0.05\n"
-                               "start variance(y1), variance(y2), variance(y3) = 0.5\n")
-    data = simulate(spec, 80, seed=5).frame
+    model, data = NEAR_ZERO_MODEL, _near_zero_rows()
     cut = cfa_tool.cutoffs(model + "bound variance(y4) >= 0\n", data, replications=100, seed=2, workers=1)
     assert any(p.kind is ProblemKind.ON_BOUND for p in cut.fit.problems)
     (count, named), _ = cut.inadmissible
