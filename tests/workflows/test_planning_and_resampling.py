@@ -525,3 +525,14 @@ def test_cutoffs_count_samples_whose_solution_is_not_admissible():
     assert any(w.startswith(f"{count} of the {cut.converged_correct} converged samples from the fitted model")
                for w in report_of(cut).warnings)
     assert cut.to_dict()["result"]["inadmissible_correct"] == count
+
+
+def test_ordinal_power_simulation_counts_estimates_held_at_a_bound():
+    # a loading whose population value (.7) is its upper bound: on the boundary, an estimate lands on the bound in
+    # about half of the samples (Self & Liang 1987); each ordinal refit judges itself as a fit does
+    spec = parse_model("factor f: y1, y2, y3, y4\nordinal y1, y2, y3, y4\nscale f by variance\n"
+                       "bound loading(f, y2) <= 0.7\nstart loading(f, y1), loading(f, y2), loading(f, y3), "
+                       "loading(f, y4) = 0.7\n")
+    result = monte_carlo_power(spec, 200, replications=40, seed=1, workers=1, categories=4)
+    assert result.inadmissible / result.converged == pytest.approx(0.5, abs=0.32)  # 4 binomial SDs of 40 samples
+    assert result.inadmissible_named == f"the loading of y2 on f held at a bound in {result.inadmissible}"
