@@ -460,6 +460,49 @@ def solution_problems(table: ParameterTable, mats: list[ModelMatrices], theta: n
     return tuple(out)
 
 
+def replicated_problems(table: ParameterTable, model, thetas: np.ndarray,
+                        standardized_loadings: bool = True) -> tuple[tuple[str, ...], ...]:
+    """Why each replicated solution (a row of ``thetas``: the free parameters of a converged refit of ``table``,
+    ``model`` its :class:`~cfa_tool.model.implied.StructuredModel`) is not admissible, judged by the rule a single fit
+    is judged by (:func:`solution_problems`: negative variances, correlations beyond +/-1, matrices that are not
+    positive definite, estimates held at a bound; without standard errors, which a replication need not have): per
+    row, the problems that make it inadmissible in the words of :func:`replicated_problem_words` (empty: admissible).
+    Power simulations, bootstraps and simulated cutoffs count them with these words."""
+    out = []
+    for theta in np.atleast_2d(thetas):
+        mats = [model.matrices(theta, g) for g in range(table.n_groups)]
+        with np.errstate(all="ignore"):
+            found = solution_problems(table, mats, theta, None, True, "", 0, standardized_loadings)
+        out.append(tuple(dict.fromkeys(replicated_problem_words(p) for p in found if p.kind.inadmissible)))
+    return tuple(out)
+
+
+def replicated_problem_words(problem: Problem) -> str:
+    """A problem of a replicated solution in words that are the same in every replication that has it (its kind and
+    parameters, without the value): 'the residual variance of on_time held at a bound'."""
+    if problem.kind is ProblemKind.ON_BOUND:
+        return problem.phrase()
+    words = problem.kind.value + (f" ({'; '.join(problem.parameter_words())})" if problem.parameters and len(
+        problem.parameters) <= 2 else "")
+    return words + (f" in group {problem.group}" if problem.group is not None else "")
+
+
+def counted_problems(per_replication: Iterable[tuple[str, ...]], shown: int = 4) -> tuple[int, str]:
+    """(how many replications have a problem, the problems named with their counts, most frequent first:
+    'the residual variance of on_time held at a bound in 39'); (0, '') when none has one."""
+    per_replication = list(per_replication)
+    count = sum(1 for found in per_replication if found)
+    if not count:
+        return 0, ""
+    tally: dict[str, int] = {}
+    for found in per_replication:
+        for words in found:
+            tally[words] = tally.get(words, 0) + 1
+    ranked = sorted(tally.items(), key=lambda kv: -kv[1])
+    named = "; ".join(f"{words} in {n}" for words, n in ranked[:shown])
+    return count, named + (f"; and {len(ranked) - shown} other kinds" if len(ranked) > shown else "")
+
+
 @dataclass(frozen=True)
 class _Labels:
     """What the assessment reads of a table's labels, laid out once per table."""

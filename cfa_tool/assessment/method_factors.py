@@ -72,9 +72,10 @@ def weak_factor_problems(estimates, latent: tuple[str, ...], observed: tuple[str
     of exploratory blocks, whose rotated loadings are reported elsewhere)."""
     items_of = set(observed)
     by_group: dict = {}
+    on_factors: dict = {}  # a higher-order factor's loadings on the factors below it: judged with its items'
     for r in estimates:  # one pass: a fit of many groups has thousands of rows
-        if r.kind == "loading" and r.variables[1] in items_of:
-            by_group.setdefault(r.group, []).append(r)
+        if r.kind == "loading":
+            (by_group if r.variables[1] in items_of else on_factors).setdefault(r.group, []).append(r)
     out = []
     for group in groups:
         rows = by_group.get(group.label, [])
@@ -85,10 +86,11 @@ def weak_factor_problems(estimates, latent: tuple[str, ...], observed: tuple[str
             if factor in leave_out:
                 continue
             own = [r for r in rows if r.variables[0] == factor]
-            sizes = np.abs([r.standardized for r in own])
+            above = [r for r in on_factors.get(group.label, []) if r.variables[0] == factor]
+            sizes = np.abs([r.standardized for r in own + above])  # every loading of the factor, not its items' only
             if not len(sizes) or not np.all(np.isfinite(sizes)) or sizes.max() >= SMALL_LOADING:
                 continue
-            share = _common_variance_share(factor, own, rows, group, latent)
+            share = None if above else _common_variance_share(factor, own, rows, group, latent)
             kind = "method factor" if factor in declared else "factor"
             beside = "" if factor in declared else ", whose every item loads on another factor too,"
             explained = ("" if share is None else

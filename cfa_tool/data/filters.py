@@ -32,15 +32,24 @@ class RowFilter:
     operator: str
     value: object
     text: str
+    #: rows the filter left out because their cell in the column was empty (set by apply_filters): an empty cell
+    #: meets no comparison, 'mode != bus' included, and a methods section must say so
+    empty: int = 0
 
     def __str__(self) -> str:
         return self.text
 
     def in_words(self) -> str:
         """The filter as a methods section words it: 'district was north', 'age was at least 18', '"wave 2" was
-        1' (the column as the model language writes names: language.names.written_name)."""
+        1' (the column as the model language writes names: language.names.written_name); with the rows it left out
+        for an empty cell first: 'mode was not bus (54 rows with no value of mode left out)'."""
         value = f"{self.value:g}" if isinstance(self.value, float) else str(self.value)
-        return f"{written_name(self.column)} {_OPERATOR_WORDS[self.operator]} {value}"
+        return f"{written_name(self.column)} {_OPERATOR_WORDS[self.operator]} {value}" + (
+            f" ({self.empty_words()} left out)" if self.empty else "")
+
+    def empty_words(self) -> str:
+        """'54 rows with no value of mode'."""
+        return f"{self.empty} row{'s' if self.empty != 1 else ''} with no value of {written_name(self.column)}"
 
 
 #: each operator of a row filter in the words of a methods section
@@ -121,11 +130,17 @@ def _first_text(column: pd.Series, numeric: pd.Series) -> str:
 
 
 def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
-                  value_labels: dict[str, dict] | None = None) -> tuple[pd.DataFrame, list[str]]:
-    """Keep the rows that meet every filter; notes say how many each filter left out.  Text is compared
-    as labels are read everywhere (spaces at the ends and Unicode forms ignored); a text value compared with a
-    column of codes that carry value labels (SPSS, Stata) is compared with the codes' labels."""
+                  value_labels: dict[str, dict] | None = None
+                  ) -> tuple[pd.DataFrame, list[str], tuple[RowFilter, ...]]:
+    """Keep the rows that meet every filter; notes say how many each filter left out, first those it left out for an
+    empty cell (which meets no comparison, '!=' included: what it holds is unknown).  Text is compared as labels are
+    read everywhere (spaces at the ends and Unicode forms ignored); a text value compared with a column of codes that
+    carry value labels (SPSS, Stata) is compared with the codes' labels.  Returns the kept rows, the notes and the
+    filters with the rows each left out for an empty cell (:attr:`RowFilter.empty`)."""
+    from dataclasses import replace
+
     notes = []
+    counted = []
     for f in filters:
         if f.column not in frame.columns:
             guess = close_names(f.column, [str(c) for c in frame.columns])
@@ -172,14 +187,18 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
             absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "
                       f"{_present(values, target)})" + _case_hint(values, target))
         before = len(frame)
+        f = replace(f, empty=int(column.isna().sum()))
+        counted.append(f)
         frame = frame.loc[keep.to_numpy()]
-        notes.append(f"row filter '{f}'{by_label} kept {len(frame)} of {before} rows{absent}")
+        emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
+                   if f.empty else "")
+        notes.append(f"row filter '{f}'{by_label} {emptied}kept {len(frame)} of {before} rows{absent}")
         if len(frame) == 0:
             raise DataError(f"{source}: no row is left after the row filter '{printable(f)}'{absent}")
     if filters:
         frame = frame.copy()
         frame.attrs[KEPT_BY] = tuple(f.text for f in filters)  # follows the frame through selections and groups
-    return frame, notes
+    return frame, notes, tuple(counted)
 
 
 

@@ -186,7 +186,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     notes: list[str] = list(loaded.notes)
     cautions = loaded.cautions
     if filters:
-        frame, filter_notes = apply_filters(frame, filters, loaded.source, loaded.value_labels)
+        frame, filter_notes, filters = apply_filters(frame, filters, loaded.source, loaded.value_labels)
         notes += filter_notes
         cautions = kept_cautions(cautions, frame)
     check_columns(spec, columns, loaded.source, loaded.sheet_hint())

@@ -91,6 +91,13 @@ def _estimator_phrase(result) -> str:
         extra = " and polyserial" if method.items is Items.MIXED else ""
         moments = (" (and the means and variances of the continuous items)"
                    if method.items is Items.MIXED and method.thresholds else "")
+        if method.items is Items.MIXED:  # which items were ordinal, which continuous (all of them read as ordinal)
+            ordinal = [x for x, c in zip(result.observed, result.data.categories) if c]
+            others = len(result.observed) - len(ordinal)
+            rest = "item" if others == 1 else f"{WORDS.get(others, others)} items"
+            which = f" ({_list([_name(x) for x in ordinal])} treated as ordinal, the other {rest} as continuous)"
+            return (f"{method.weighting.label} least squares on {kind}{extra} correlations{aside}{which}{moments}, "
+                    f"with robust standard errors")
         return (f"{method.weighting.label} least squares on {kind}{extra} correlations{aside} of the ordinal "
                 f"items{moments}, with robust standard errors")
     base = "full-information maximum likelihood" if method.full_information else "maximum likelihood"

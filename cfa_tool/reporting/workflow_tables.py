@@ -663,8 +663,11 @@ def bootstrap_report(boot) -> Report:
                             "Percentile upper", *([] if ordinal else ["BCa lower", "BCa upper"])], values))
     few = few_draws(boot.converged, 0.025, "converged resamples", "the interval ends" + (
         " and the Bollen-Stine p-value" if boot.bollen_stine_p is not None else ""))
+    kept = (f"{boot.inadmissible} of the {boot.converged} converged resamples have a solution that is not admissible, "
+            f"as a single fit would judge it ({boot.inadmissible_named}); they are kept in the intervals, which are of "
+            f"the estimates' sampling distribution, such solutions included",) if boot.inadmissible else ()
     return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines), (table,),
-                  tuple(result.warnings), (HIGH_STAKES_NOTE,), warnings=(few,) if few else ())
+                  tuple(result.warnings), (HIGH_STAKES_NOTE,), warnings=kept + ((few,) if few else ()))
 
 
 #: fewer draws than this beyond a percentile make it move with the seed (a rule of thumb of this program)
@@ -697,7 +700,7 @@ def cutoffs_report(cut) -> Report:
             reading = f"none at N = {cut.n_obs:,}" + ("; one exists " + ", or ".join(found) if found else
                                                       "; none either at 16 times this N or 3 times the misspecification")
         else:
-            reading = "beyond the cutoff: misfit at least that large is likely" if c.beyond else "within the cutoff"
+            reading = CUTOFF_BEYOND if c.beyond else CUTOFF_WITHIN
         rows.append([c.index.upper(), f"{100 * c.level:.0f}%", unit(c.cutoff) if c.cutoff is not None else "",
                      unit(c.observed), reading])
         values.append([c.index.upper(), c.level, c.cutoff, c.observed, reading])
@@ -710,7 +713,7 @@ def cutoffs_report(cut) -> Report:
                      f"{', '.join(map(str, N_STEPS))} times this N and {', '.join(f'{s:g}' for s in SIZE_STEPS)} times "
                      f"the misspecification, not by extrapolating.")
     table = _table("cutoffs", "Cutoffs", [("Index", "l"), ("Level", "r"), ("Cutoff", "r"), ("This model", "r"),
-                                          ("Reading", "l")], rows,
+                                          ("Reading", "l")], rows, cutoff_meaning(cut.misspecification),
                    values=(["Index", "Level", "Cutoff", "This model", "Reading"], values))
     left_out = _left_out(result) if cut.pattern_rows is None else ""  # the gaps carried over: said below
     lines = (f"{cut.replications} samples of N = {cut.n_obs}{left_out} from the fitted model and from the model with "
@@ -729,10 +732,32 @@ def cutoffs_report(cut) -> Report:
             lines += (f"That test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
                       f"{cut.converged_correct} samples drawn from it (nominal 5%).",)
     few = few_draws(cut.replications, 0.05, "samples", "the cutoffs")
+    judged = [f"{count} of the {converged} converged samples from the {whose} ({named})" for (count, named), converged, whose
+              in zip(cut.inadmissible, (cut.converged_correct, cut.converged_misspecified),
+                     ("fitted model", "misspecified model")) if count]
+    kept = (f"{' and '.join(judged)} have a solution that is not admissible, as a single fit would judge it; they are "
+            f"kept in the distributions the cutoffs come from",) if judged else ()
+    # the fit's notes on its rows (rows left out, rows with gaps) first, beside the notes on the estimation
     return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", _fit_notice(result), lines,
-                  (table,), tuple(notes) + tuple(result.warnings), ("These cutoffs hold for this model, sample size and kind of misspecification "
+                  (table,), tuple(notes), ("These cutoffs hold for this model, sample size and kind of misspecification "
                                            "only; they are guides, not laws.", HIGH_STAKES_NOTE),
-                  warnings=(few,) if few else ())
+                  warnings=tuple(result.warnings) + kept + ((few,) if few else ()))
+
+
+#: how a fit index on either side of a simulated cutoff reads (McNeish & Wolf 2023): the cutoff is a value that most
+#: samples of a model misspecified by the stated amount pass, so a value within it makes misfit that large unlikely,
+#: and a value beyond it only fails to rule it out (a smaller misspecification, or another kind, can give it too)
+CUTOFF_BEYOND = "beyond: misfit that large is not ruled out"
+CUTOFF_WITHIN = "within: misfit that large is unlikely"
+
+
+def cutoff_meaning(misspecification: str) -> str:
+    """The note under the cutoffs: what a cutoff at a level means, and so what either side of it says."""
+    return (f"A cutoff at 95% is a value that 95% of the samples from the model with {misspecification} left out "
+            f"fall beyond, and at most 5% of the samples from the fitted model do (likewise at 90%; McNeish & Wolf "
+            f"2023). A value within it is one such a misspecified model seldom gives, so misfit that large is "
+            f"unlikely; a value beyond it is what such a model gives in most samples, which does not show that misfit "
+            f"that large is present (a smaller misspecification, or another kind, can give it too).")
 
 
 # ---------------------------------------------------------------- power
@@ -783,10 +808,19 @@ def _ordinal_power_lines(result) -> list[str]:
 
 
 def _inadmissible_phrase(results) -> str:
-    """How many converged replications had a negative variance estimate, per sample size; they are kept."""
+    """How many converged replications have a solution that is not admissible, per sample size; they are kept."""
     counts = ", ".join(f"{r.inadmissible}" + (f" at N = {r.n_obs}" if len(results) > 1 else "") for r in results)
-    return (f"converged replications with a negative variance estimate (inadmissible): {counts}; they are included in "
-            f"the power, coverage and bias figures")
+    return (f"converged replications whose solution is not admissible (as a single fit would judge it): {counts}; they "
+            f"are included in the power, coverage and bias figures")
+
+
+def _inadmissible_cautions(results) -> tuple[str, ...]:
+    """A caution, first, per sample size at which some converged replications are not admissible, naming their
+    problems (assessment.admissibility.counted_problems)."""
+    return tuple(f"{r.inadmissible} of the {r.converged} converged replications" + (f" at N = {r.n_obs}" if len(
+        results) > 1 else "") + f" have a solution that is not admissible, as a single fit would judge it "
+        f"({getattr(r, 'inadmissible_named', '') or 'problems not recorded'}); they are included in the power, coverage "
+        f"and bias figures, which therefore describe such solutions too" for r in results if r.inadmissible)
 
 
 def not_carried_line(not_carried, power: bool = True) -> list[str]:
@@ -837,7 +871,8 @@ def montecarlo_report(result) -> Report:
                    values=(["Parameter", "Power", "Coverage", "Estimate relative bias", "SE relative bias"], values))
     return Report(ResultKind.POWER_SIMULATION,
                   f"Monte Carlo power: N = {result.n_obs}, {result.replications} replications (seed {result.seed})",
-                  None, tuple(lines), (table, *_population_of(result)), warnings=few_replications(result.replications))
+                  _notice([], _inadmissible_cautions([result])), tuple(lines), (table, *_population_of(result)),
+                  warnings=few_replications(result.replications))
 
 
 def _population_of(result) -> tuple[ReportTable, ...]:
@@ -884,8 +919,8 @@ def power_curve_report(curve) -> Report:
                    "values, mean estimates and SDs are in the JSON result.",
                    values=([h for h, _ in heads], values))
     return Report(ResultKind.POWER_SIMULATION, f"Monte Carlo power by sample size: {first.replications} replications "
-                                               f"per size (seed {first.seed})", None, tuple(lines),
-                  (table, trust, *_population_of(first)),
+                                               f"per size (seed {first.seed})",
+                  _notice([], _inadmissible_cautions(curve.results)), tuple(lines), (table, trust, *_population_of(first)),
                   warnings=few_replications(first.replications))
 
 

@@ -45,7 +45,8 @@ from cfa_tool import options as check
 from cfa_tool.data.moments import SampleMoments, numeric_columns, sample_moments
 from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.language.spec import Spec
-from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fits
+from cfa_tool.assessment.admissibility import counted_problems, replicated_problems
+from cfa_tool.pipeline.continuous import FitOptions, fit_moments, model_structure, moments_from_rows, replicate_fits
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary, refuse_lone_strata
 from cfa_tool.method import MissingData, WeightKind
 from cfa_tool.pipeline.inputs import (_fit_rows, converged, design_test, moments_for, odd_values_named,
@@ -96,6 +97,10 @@ class BootstrapResult(Presentable):
     #: why the Bollen-Stine p-value was not computed where a continuous fit's would be (None: it was, or was not
     #: asked for)
     bollen_stine_not_computed: str | None = None
+    #: converged resamples whose solution is not admissible, as a single fit would judge it
+    #: (assessment.admissibility.replicated_problems), kept in the intervals; their problems named with their counts
+    inadmissible: int = 0
+    inadmissible_named: str = ""
 
     def to_dict(self) -> dict:
         """The fit and, under "result", the bootstrap."""
@@ -104,12 +109,13 @@ class BootstrapResult(Presentable):
             "not_converged": self.replications - self.converged - self.failed, "failed": self.failed, "seed": self.seed,
             "bollen_stine_p_value": self.bollen_stine_p, "bollen_stine_converged": self.bollen_stine_converged,
             "bollen_stine_not_computed": self.bollen_stine_not_computed,
+            "inadmissible": self.inadmissible, "inadmissible_problems": self.inadmissible_named,
             "intervals": [i.to_dict() for i in self.intervals]})}
 
 
 def _replicate(tasks: list) -> list:
-    """(converged, values, standardized values, chi-square, failed) of each task's resample, refitted together;
-    failed: a resample of rows with gaps whose saturated model cannot be estimated."""
+    """(converged, values, standardized values, chi-square, failed, free parameters) of each task's resample,
+    refitted together; failed: a resample of rows with gaps whose saturated model cannot be estimated."""
     spec, rows, names, _, start, design, gaps = tasks[0]
     if design is None and not gaps:  # resamples of complete rows: their moments in one stacked computation
         samples = resampled_moments(rows, names, [task[3] for task in tasks])
@@ -125,10 +131,10 @@ def _replicate(tasks: list) -> list:
     out = []
     for m in samples:
         if m is None:
-            out.append((False, None, None, float("nan"), True))
+            out.append((False, None, None, float("nan"), True, None))
         else:
             fit = next(fits)
-            out.append((fit.converged, fit.values, fit.standardized, fit.chi_square, False))
+            out.append((fit.converged, fit.values, fit.standardized, fit.chi_square, False, fit.theta))
     return out
 
 
@@ -454,9 +460,12 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
         converged_bs = len(bdraws)
         if bdraws:
             p_bs = float(np.mean([d[3] >= result.fit.chi_square for d in bdraws]))
+    table, model = model_structure(spec, None, gaps)
+    count, named = counted_problems(replicated_problems(table, model, np.array([d[5] for d in ok])))
     return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed,
                            intervals=intervals, bollen_stine_p=p_bs, bollen_stine_converged=converged_bs,
-                           failed=sum(d[4] for d in draws), bollen_stine_not_computed=not_computed)
+                           failed=sum(d[4] for d in draws), bollen_stine_not_computed=not_computed,
+                           inadmissible=count, inadmissible_named=named)
 
 
 def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications: int, seed: int, workers, scheduler,
@@ -478,9 +487,11 @@ def _bootstrap_ordinal(result: FitResult, spec, values: np.ndarray, replications
                               f"the model is too fragile for these data (check for Heywood cases, rare answer "
                               f"categories, or use more rows)")
     intervals = _intervals(result, np.array([d.values for d in ok]), np.array([d.standardized for d in ok]))
+    count, named = counted_problems(d.problems for d in ok)  # as each resample's fit judged itself
     return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed, intervals=intervals,
                            bollen_stine_p=None, bollen_stine_converged=None,
-                           failed=sum(d.outcome is Outcome.FAILED for d in draws))
+                           failed=sum(d.outcome is Outcome.FAILED for d in draws), inadmissible=count,
+                           inadmissible_named=named)
 
 
 def _intervals(result: FitResult, values: np.ndarray, standardized: np.ndarray, accel_values: np.ndarray | None = None,

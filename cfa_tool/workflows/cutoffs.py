@@ -34,7 +34,8 @@ from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.data.moments import sample_moments
 from cfa_tool.errors import DataError, EstimationError, OptionError
 from cfa_tool.method import MissingData
-from cfa_tool.pipeline.continuous import FitOptions, fit_moments, moments_from_rows, replicate_fits
+from cfa_tool.assessment.admissibility import counted_problems, replicated_problems
+from cfa_tool.pipeline.continuous import FitOptions, fit_moments, model_structure, moments_from_rows, replicate_fits
 from cfa_tool.pipeline.inputs import (_fit_rows, converged, odd_values_named, ordinal_items_of, read_inputs_with_notes,
                                       refit_missing_handling, with_odd_values)
 from cfa_tool.language.spec import Spec
@@ -83,6 +84,10 @@ class CutoffResult(Presentable):
     #: rows with gaps: how many data rows' missing-data patterns the simulated samples took their gaps from
     #: (None: complete rows were simulated)
     pattern_rows: int | None = None
+    #: converged samples whose solution is not admissible as a single fit would judge it, of the fitted model and of
+    #: the misspecified one: (count, their problems named with their counts) each (assessment.admissibility.
+    #: counted_problems); they stay in the distributions the cutoffs come from
+    inadmissible: tuple[tuple[int, str], tuple[int, str]] = ((0, ""), (0, ""))
 
     @property
     def statistic(self) -> str:
@@ -97,11 +102,14 @@ class CutoffResult(Presentable):
             "seed": self.seed, "n_obs": self.n_obs, "misspecification_size": self.misspecification_size,
             "indices_from": self.statistic, "correct_model_rejected": self.correct_rejected,
             "missing_data_patterns_from_rows": self.pattern_rows,
+            "inadmissible_correct": self.inadmissible[0][0], "inadmissible_misspecified": self.inadmissible[1][0],
+            "inadmissible_problems_correct": self.inadmissible[0][1],
+            "inadmissible_problems_misspecified": self.inadmissible[1][1],
             "cutoffs": [c.to_dict() for c in self.cutoffs]})}
 
 
 def _replicate(tasks: list) -> list:
-    """(converged, CFI, RMSEA, SRMR) of each task's simulated data set, fitted together; with the data's
+    """(converged, CFI, RMSEA, SRMR, free parameters) of each task's simulated data set, fitted together; with the data's
     missing-data patterns (an (R, p) mask of answered items, or None), each sample takes the gaps of rows drawn
     from them and is fitted by full-information ML (a sample whose saturated model cannot be estimated counts as
     not converged)."""
@@ -109,7 +117,7 @@ def _replicate(tasks: list) -> list:
     if patterns is None:
         samples = [moments_from_rows(simulate_rows(sigma, n, np.random.default_rng(seed)), names)
                    for _, sigma, _, n, seed, _, _, _ in tasks]
-        return [(fit.converged, fit.cfi, fit.rmsea, fit.srmr) for fit in replicate_fits(spec, samples, start)]
+        return [(fit.converged, fit.cfi, fit.rmsea, fit.srmr, fit.theta) for fit in replicate_fits(spec, samples, start)]
     out = []
     for _, sigma, _, n, seed, _, _, _ in tasks:
         rng = np.random.default_rng(seed)
@@ -117,10 +125,10 @@ def _replicate(tasks: list) -> list:
         try:
             sample = moments_from_rows(rows, names, full_information=True)
         except (DataError, EstimationError):  # an item or a pair of items without enough answers
-            out.append((False, np.nan, np.nan, np.nan))
+            out.append((False, np.nan, np.nan, np.nan, None))
             continue
         [fit] = replicate_fits(spec, [sample], start, full_information=True)
-        out.append((fit.converged, fit.cfi, fit.rmsea, fit.srmr))
+        out.append((fit.converged, fit.cfi, fit.rmsea, fit.srmr, fit.theta))
     return out
 
 
@@ -208,7 +216,7 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
         sample = _sampler(spec, result, replications, seeds, workers, scheduler, progress, patterns)
         observed = {"cfi": result.fit.cfi, "rmsea": result.fit.rmsea, "srmr": result.fit.srmr}
     wrong, what, size = misspecify()
-    correct, mis = sample(result.implied_covariance, n), sample(wrong, n)
+    (correct, judged_correct), (mis, judged_mis) = sample(result.implied_covariance, n), sample(wrong, n)
     if len(correct) < 10 or len(mis) < 10:
         raise OptionError("too few simulated fits converged to set cutoffs")
     found = _cutoffs(correct, mis)
@@ -220,7 +228,7 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
         if all(key in separating_n or cut is not None for key, cut in found.items()):
             break
         bigger = multiple * n
-        more = _cutoffs(sample(result.implied_covariance, bigger), sample(wrong, bigger))
+        more = _cutoffs(sample(result.implied_covariance, bigger)[0], sample(wrong, bigger)[0])
         for key, cut in more.items():
             if found[key] is None and cut is not None:
                 separating_n.setdefault(key, bigger)
@@ -231,7 +239,7 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
             stronger, _, _ = misspecify(multiple)
         except ValueError:  # the stronger misspecification is not a possible population
             break
-        more = _cutoffs(correct, sample(stronger, n))
+        more = _cutoffs(correct, sample(stronger, n)[0])
         for key, cut in more.items():
             if found[key] is None and cut is not None:
                 separating_size.setdefault(key, multiple * size)
@@ -247,7 +255,8 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
     return CutoffResult(fit=result, misspecification=what, replications=replications, converged_correct=len(correct),
                         converged_misspecified=len(mis), seed=seed, n_obs=n, cutoffs=tuple(cutoffs),
                         misspecification_size=size, correct_rejected=rejected,
-                        pattern_rows=len(patterns) if patterns is not None else None)
+                        pattern_rows=len(patterns) if patterns is not None else None,
+                        inadmissible=(counted_problems(judged_correct), counted_problems(judged_mis)))
 
 
 def _latent_response_misspecified(spec: Spec, result: FitResult, scale: float = 1.0) -> tuple[np.ndarray, str, float]:
@@ -276,25 +285,29 @@ def _ordinal_sampler(spec: Spec, result: FitResult, replications: int, seeds: np
     def sample(sigma: np.ndarray, n: int) -> np.ndarray:
         states = seeds.spawn(1)[0].generate_state(replications)
         tasks = [(fitting, sigma, thresholds, n, int(s), ()) for s in states]
-        draws = run_tasks(simulated_fit, tasks, workers, scheduler, progress)
-        return np.array([(d.cfi, d.rmsea, d.srmr, d.p_value) for d in draws if d.converged]).reshape(-1, len(INDICES) + 1)
+        draws = [d for d in run_tasks(simulated_fit, tasks, workers, scheduler, progress) if d.converged]
+        return (np.array([(d.cfi, d.rmsea, d.srmr, d.p_value) for d in draws]).reshape(-1, len(INDICES) + 1),
+                [d.problems for d in draws])  # as each sample's fit judged itself
 
     return sample
 
 
 def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.SeedSequence, workers, scheduler, progress,
              patterns: np.ndarray | None = None):
-    """A function (population covariance, N) -> the fit indices of the converged simulated samples;
+    """A function (population covariance, N) -> the fit indices of the converged simulated samples, and why each
+    of them is not admissible (assessment.admissibility.replicated_problems; empty: admissible);
     each call draws fresh seeds from the one seed sequence, so the whole run repeats exactly.  With
     ``patterns`` the samples take the data's gaps (see :func:`_replicate`), centred at the fitted means."""
     mean = result.groups[0].implied_mean if patterns is not None else None
+    table, model = model_structure(spec, None, patterns is not None)
 
-    def sample(sigma: np.ndarray, n: int) -> np.ndarray:
+    def sample(sigma: np.ndarray, n: int) -> tuple[np.ndarray, tuple[tuple[str, ...], ...]]:
         states = seeds.spawn(1)[0].generate_state(replications)
         tasks = [(spec, sigma, result.observed, n, int(s), result.theta, patterns, mean) for s in states]
-        draws = run_tasks(_replicate, tasks, workers, scheduler, progress,
-                          refits_together(REFITS_TOGETHER, len(result.theta)), batched=True)
-        return np.array([d[1:] for d in draws if d[0]]).reshape(-1, len(INDICES))
+        draws = [d for d in run_tasks(_replicate, tasks, workers, scheduler, progress,
+                                      refits_together(REFITS_TOGETHER, len(result.theta)), batched=True) if d[0]]
+        judged = replicated_problems(table, model, np.array([d[4] for d in draws])) if draws else ()
+        return np.array([d[1:4] for d in draws]).reshape(-1, len(INDICES)), judged
 
     return sample
 

@@ -15,7 +15,9 @@ import numpy as np
 from cfa_tool.numerics import distributions as dist
 
 from cfa_tool import options as check
+from cfa_tool.assessment.admissibility import counted_problems, replicated_problems
 from cfa_tool.errors import OptionError
+from cfa_tool.model.implied import StructuredModel
 from cfa_tool.pipeline.continuous import moments_from_rows, replicate_fits
 from cfa_tool.language.spec import Spec
 from cfa_tool.workflows.parallel import REFITS_TOGETHER, refits_together, run_tasks
@@ -56,12 +58,15 @@ class MonteCarloPower(Presentable):
     #: whose adjusted test rejected the (true) model at alpha
     ordinal: str | None = None
     model_rejected: float | None = None
-    #: converged replications with a negative variance estimate (an inadmissible solution); they stay in the figures
+    #: converged replications whose solution is not admissible, as a single fit would judge it
+    #: (assessment.admissibility.replicated_problems: negative variances, estimates held at a bound, ...); they stay in
+    #: the figures, and ``inadmissible_named`` names their problems with the count of each
     inadmissible: int = 0
     #: what the earlier fit's data had that the simulated rows do not (simulation.Population.not_carried)
     not_carried: tuple[str, ...] = ()
     #: the population the samples were drawn from (simulation.Population): every value, fixed ones included
     population: object = field(default=None, compare=False)
+    inadmissible_named: str = ""
 
     @property
     def observed(self) -> tuple[str, ...]:
@@ -74,7 +79,8 @@ class MonteCarloPower(Presentable):
                 "parameters": [p.to_dict() for p in self.parameters], "population_defaults": list(self.defaulted),
                 "population": self.population.values() if self.population is not None else None,
                 "ordinal_items_fitted_by": self.ordinal, "model_test_rejection_rate": self.model_rejected,
-                "inadmissible": self.inadmissible, "not_carried_over": list(self.not_carried)}
+                "inadmissible": self.inadmissible,
+                "inadmissible_problems": self.inadmissible_named, "not_carried_over": list(self.not_carried)}
 
 
 @dataclass(frozen=True)
@@ -196,12 +202,11 @@ def _ordinal_power(spec: Spec, population, sizes, streams, replications: int, se
         if not ok:
             raise OptionError(f"no replication converged at N = {n}; check the population values and the sample size")
         thetas, ses = np.array([d.values for d in ok]), np.array([d.se for d in ok])
-        variances = [i for i, key in enumerate(keys) if key[0] in VARIANCE_KINDS]
+        count, named = counted_problems(d.problems for d in ok)  # as each replication's fit judged itself
         powers.append(MonteCarloPower(n, replications, len(ok), alpha, seed,
                                       _parameter_rows(table.free_labels, np.array(truth), thetas, ses, alpha), defaulted,
                                       weighting.phrase, float(np.mean([d.p_value < alpha for d in ok])),
-                                      _negative_variances(thetas, variances), population.not_carried,
-                                      population))
+                                      count, population.not_carried, population, named))
     return powers[0] if len(sizes) == 1 else PowerCurve(tuple(powers))
 
 
@@ -219,19 +224,10 @@ def _summary(population, n_obs: int, replications: int, seed: int, alpha: float,
     thetas = np.array([t for t, _ in ok])
     ses = np.array([se[[entry_of[k] for k in range(table.n_free)]] for _, se in ok])
     rows = _parameter_rows(table.free_labels, population.theta, thetas, ses, alpha)
-    variances = sorted({p.terms[0][0] for p in table.parameters if p.kind in VARIANCE_KINDS and len(p.terms) == 1})
+    count, named = counted_problems(replicated_problems(table, StructuredModel(table), thetas))
     return MonteCarloPower(n_obs, replications, len(ok), alpha, seed, rows, population.defaulted,
-                           inadmissible=_negative_variances(thetas, variances), not_carried=population.not_carried,
-                           population=population)
-
-
-#: the parameters whose negative estimate makes a solution inadmissible (a Heywood case)
-VARIANCE_KINDS = ("factor_variance", "residual_variance")
-
-
-def _negative_variances(thetas: np.ndarray, positions: list[int]) -> int:
-    """How many replications (rows of ``thetas``) have a negative estimate among the free variances."""
-    return int((thetas[:, positions] < 0).any(axis=1).sum()) if positions else 0
+                           inadmissible=count, not_carried=population.not_carried, population=population,
+                           inadmissible_named=named)
 
 
 def _parameter_rows(labels, population: np.ndarray, thetas: np.ndarray, ses: np.ndarray,

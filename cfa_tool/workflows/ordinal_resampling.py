@@ -19,6 +19,7 @@ from enum import Enum
 import numpy as np
 import pandas as pd
 
+from cfa_tool.assessment.admissibility import replicated_problem_words
 from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.errors import CfaError
 from cfa_tool.method import MissingData, Weighting
@@ -89,6 +90,9 @@ class Refit:
     rmsea: float = float("nan")
     srmr: float = float("nan")
     p_value: float = float("nan")
+    #: why the refit's solution is not admissible, as the fit judged itself (its inadmissible problems in the words
+    #: of assessment.admissibility.replicated_problem_words; empty: admissible)
+    problems: tuple[str, ...] = ()
 
     @property
     def converged(self) -> bool:
@@ -107,7 +111,8 @@ def _refit(result: FitResult | None, keys: tuple[Key, ...]) -> Refit:
         return Refit(Outcome.FAILED, nan, nan, nan)
     return Refit(Outcome.CONVERGED, np.array([r.estimate for r in found]), np.array([r.standardized for r in found]),
                  np.array([r.se for r in found]), result.robust.cfi_robust, result.robust.rmsea_robust,
-                 result.fit.srmr, result.robust.p_value_scaled)
+                 result.fit.srmr, result.robust.p_value_scaled,
+                 tuple(dict.fromkeys(replicated_problem_words(p) for p in result.problems if p.kind.inadmissible)))
 
 
 def resample(task) -> Refit:

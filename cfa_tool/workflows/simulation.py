@@ -381,6 +381,7 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     one_group_only(spec, "the simulation draws rows of one group")
     table = build_parameter_table(spec)
     impossible_fixed_values(table, spec.source)
+    starts_beyond_bounds(spec)
     model = StructuredModel(table)
     given = table.start.copy()
     kind_of: dict[int, str] = {}
@@ -406,11 +407,47 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     if not np.isnan(given).all():
         theta = _defaults_beside_given(table, model, theta, np.isnan(given), target,
                                        standardized_entries(table, model, est.theta))
+    outside = np.flatnonzero((theta < table.lower) | (theta > table.upper)).tolist()
+    if outside:  # a default the model's own bounds forbid (a 'start' value beyond one is refused above)
+        k = outside[0]
+        raise ModelError(f"{spec.source}: the default population value {theta[k]:.3g} of {table.free_labels[k]} lies "
+                         f"outside the model's own bound ({_bound_words(table.lower[k], table.upper[k])}), so every "
+                         f"simulated sample would hold its estimate at the bound; give its population value with a "
+                         f"'start' statement within the bound")
     sigma = model.implied(theta)
     if log_det_pd(sigma) is None:  # not positive definite, or not finite
         raise OptionError("the population values imply a covariance matrix that is not positive definite or not finite "
                           "(check the model's fixed and start values for impossible ones)")
     return Population(spec, table, theta, sigma, tuple(defaulted))
+
+
+def _bound_words(lower: float | None, upper: float | None) -> str:
+    """A bound in words: 'at least 0', 'at most 0.1', 'between 0 and 1' (None or an infinite limit: none)."""
+    low = lower is not None and np.isfinite(lower)
+    high = upper is not None and np.isfinite(upper)
+    if low and high:
+        return f"between {lower:g} and {upper:g}"
+    return f"at least {lower:g}" if low else f"at most {upper:g}"
+
+
+def starts_beyond_bounds(spec: Spec) -> None:
+    """Refuse a 'start' value that a 'bound' statement of the same model forbids, naming both lines: in a
+    simulation the start values are the population's, and a population beyond the model's own bound holds every
+    replication's estimate at the bound (coverage 0, standard errors meaningless)."""
+    for setting in spec.starts:
+        for ref in setting.refs:
+            for bound in spec.bounds:
+                for other in bound.refs:
+                    if other.key() != ref.key() or (other.group is not None and ref.group is not None
+                                                    and other.group != ref.group):
+                        continue
+                    if ((bound.lower is not None and setting.value < bound.lower)
+                            or (bound.upper is not None and setting.value > bound.upper)):
+                        raise ModelError(
+                            f"the population value {setting.value:g} of {ref} (its 'start' value) lies outside the "
+                            f"model's own bound on it ({_bound_words(bound.lower, bound.upper)}, line "
+                            f"{other.location.line}): every simulated sample would hold its estimate at the bound; "
+                            f"change the start value or the bound", ref.location, spec.source_line(ref.location))
 
 
 def simulate_rows(sigma: np.ndarray, n: int, rng: np.random.Generator, means: np.ndarray | None = None) -> np.ndarray:

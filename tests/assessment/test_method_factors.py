@@ -113,3 +113,31 @@ def test_the_paragraph_names_a_method_factors_items_and_keeps_its_loadings_apart
     assert f"Standardized loadings ranged from {unit(min(traits), 2)} to {unit(max(traits), 2)}." in text
     assert (f"The method factor m was indicated by y2, y4, y6, and y8; its standardized loadings ranged from "
             f"{unit(min(method), 2)} to {unit(max(method), 2)}.") in text
+
+
+def test_a_higher_order_factor_that_also_takes_an_item_is_judged_on_all_its_loadings():
+    # g over a, b, c (standardized loadings .7: invented population values, recovered exactly by rows whose covariance
+    # matrix is the population's) that also takes y1, which loads on a too, with a population loading of 0.  Its one
+    # item loading is small, its loadings on a, b, c are not: g carries much (hostile trial: the caution and the
+    # methods paragraph called it negligible, 'all below .20', judged by the item's loading alone)
+    L = np.zeros((12, 3))
+    for f in range(3):
+        L[4 * f:4 * f + 4, f] = 0.7
+    phi = np.full((3, 3), 0.49) + np.diag([0.51] * 3)  # first-order factors: .7 x .7 through g, variance 1
+    data = exact_cfa_rows(L, phi, np.diag(1.0 - np.diag(L @ phi @ L.T)), 800, 20261203)
+    model = ("factor a: y1, y2, y3, y4\nfactor b: y5, y6, y7, y8\nfactor c: y9, y10, y11, y12\n"
+             "factor g: a, b, c, y1\n")
+    result = cfa_tool.fit(model, data)
+    assert result.converged and not _weak(result)
+    rows = {(r.kind, r.variables): r for r in result.estimates}
+    # the standardized loading of g on a from the raw estimates (numpy): B * sd(g) / sd(a), var(a) = B^2 var(g) + psi
+    var_g = rows[("factor_variance", ("g",))].estimate
+    b_a = rows[("loading", ("g", "a"))].estimate
+    total_a = b_a ** 2 * var_g + rows[("factor_variance", ("a",))].estimate
+    std_a = b_a * np.sqrt(var_g / total_a)
+    assert std_a == pytest.approx(rows[("loading", ("g", "a"))].standardized, abs=1e-6)
+    assert std_a == pytest.approx(0.7, abs=0.01)  # the population value
+    assert abs(rows[("loading", ("g", "y1"))].standardized) < 0.20  # the item's loading alone would be 'negligible'
+    assert "below .20" not in methods_paragraph(result)
+    notice = fit_report(result).notice
+    assert notice is None or not any("small standardized loadings" in line for line in notice.lines)

@@ -146,3 +146,21 @@ def test_mixed_continuous_and_ordinal_model():
     result = cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\nordinal y2..y8\nscale latent by variance\n", data)
     assert result.converged and result.method.items is Items.MIXED
     assert any("correlation metric" in w for w in result.warnings)
+
+
+def test_the_methods_paragraph_names_which_items_were_ordinal_and_which_continuous():
+    # seven of eight items ordinal, one continuous; then two ordinal ('ordinal' statement and --ordinal) among
+    # continuous ones: the paragraph read as if every item were ordinal (hostile trial)
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    data = _two_factor_ordinal(1000, 8)
+    data["y1"] = np.random.default_rng(9).normal(size=1000) + data["y2"]  # continuous
+    result = cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\nordinal y2..y8\n", data)
+    text = " ".join(methods_paragraph(result).split())
+    assert "(y2, y3, y4, y5, y6, y7, and y8 treated as ordinal, the other item as continuous)" in text
+    two = data.assign(**{x: data[x] + np.random.default_rng(3).normal(scale=0.3, size=1000) for x in
+                         ("y1", "y3", "y4", "y5", "y7", "y8")})
+    result = cfa_tool.fit("factor f: y1..y4\nfactor g: y5..y8\nordinal y6\n", two, ordinal=["y2"])
+    text = " ".join(methods_paragraph(result).split())
+    assert "(y2 and y6 treated as ordinal, the other six items as continuous)" in text
+    assert "of the ordinal items" not in text

@@ -41,3 +41,31 @@ def test_compare_and_invariance_name_the_filters_too():
     assert compared.n_obs == kept and clause in " ".join(comparison_paragraph(compared).split())
     ladder = cfa_tool.invariance(THREE_FACTORS, data, "school", keep=("ageyr >= 13",))
     assert clause in " ".join(invariance_paragraph(ladder, LEVELS).split())
+
+
+def test_rows_left_out_for_an_empty_cell_are_said_for_every_operator():
+    # 'school != Pasteur' leaves out the rows with no school as well (an empty cell meets no comparison); the note and
+    # the paragraph said only 'those where school was not Pasteur' (hostile trial).  Counts by pandas on Holzinger &
+    # Swineford (1939) with every tenth row's school and age emptied.
+    import numpy as np
+
+    data = holzinger_swineford()
+    data["school"] = data["school"].astype(object)
+    data.loc[data.index[::10], ["school", "ageyr"]] = None
+    empty = int(data["school"].isna().sum())
+    for keep, kept_rows in (("school != Pasteur", (data["school"] != "Pasteur") & data["school"].notna()),
+                            ("school = Pasteur", data["school"] == "Pasteur"),
+                            ("ageyr >= 13", data["ageyr"] >= 13), ("ageyr < 13", data["ageyr"] < 13)):
+        column = keep.split()[0]
+        result = cfa_tool.fit(THREE_FACTORS, data, keep=(keep,))
+        assert result.n_obs == int(kept_rows.sum())
+        (counted,) = result.data.row_filters
+        assert counted.empty == empty == int(data[column].isna().sum())
+        said = f"{empty} rows with no value of {column}"
+        note = next(w for w in result.warnings if w.startswith(f"row filter '{keep}'"))
+        assert note.startswith(f"row filter '{keep}' left out {said}")  # first in the note
+        text = " ".join(methods_paragraph(result).split())
+        assert f"those where {counted.in_words()}" in text and f"({said} left out)" in text
+    whole = cfa_tool.fit(THREE_FACTORS, holzinger_swineford(), keep=("school != Pasteur",))
+    assert whole.data.row_filters[0].empty == 0 and "left out" not in whole.data.row_filters[0].in_words()
+    assert np.isfinite(whole.fit.chi_square)

@@ -374,9 +374,37 @@ def test_power_simulation_counts_negative_variance_estimates():
     result = monte_carlo_power(spec, n, replications=400, seed=3, workers=1)
     expected = share * result.converged
     assert abs(result.inadmissible - expected) < 4 * np.sqrt(expected * (1 - share))
-    assert f"(inadmissible): {result.inadmissible};" in " ".join(report_of(result).lines[0].split())
+    assert f"(as a single fit would judge it): {result.inadmissible};" in " ".join(report_of(result).lines[0].split())
     assert result.to_dict()["inadmissible"] == result.inadmissible
     assert monte_carlo_power(spec, 3000, replications=20, seed=3, workers=1).inadmissible == 0
+    # held at a bound of zero instead ('bound variance(y4) >= 0'), the same samples' estimates are inadmissible as a
+    # fit judges one held at its bound: the mass at the boundary is the share that would fall below it (Self & Liang
+    # 1987), so the same count as without the bound, named first in the report (hostile trial: it counted none)
+    bounded = monte_carlo_power(parse_model("\n".join(spec.lines) + "\nbound variance(y4) >= 0\n"), n, replications=400, seed=3,
+                                workers=1)
+    assert abs(bounded.inadmissible - expected) < 4 * np.sqrt(expected * (1 - share))
+    assert abs(bounded.inadmissible - result.inadmissible) <= 2
+    assert bounded.inadmissible_named == f"the residual variance of y4 held at a bound in {bounded.inadmissible}"
+    notice = report_of(bounded).notice
+    assert notice is not None and not notice.inadmissible
+    assert f"{bounded.inadmissible} of the {bounded.converged} converged replications" in notice.lines[0]
+    assert "negative residual variance (the residual variance of y4)" in result.inadmissible_named
+
+
+def test_a_population_beyond_the_models_own_bound_is_refused():
+    # the start values of a simulation are the population's: one that the model's own bound forbids would hold every
+    # replication's estimate at the bound (hostile trial: coverage 0%, an SE bias of 1e18 %, said without a word)
+    from cfa_tool.errors import ModelError
+
+    spec = parse_model("factor f: y1, y2, y3, y4\nbound variance(y4) <= 0.1\nstart variance(y4) = 0.9\n")
+    with pytest.raises(ModelError, match=r"0.9 of variance\(y4\).*outside the model's own bound on it \(at most "
+                                         r"0.1, line 2\)") as caught:
+        monte_carlo_power(spec, 300, replications=5, workers=1)
+    assert caught.value.location.line == 3
+    with pytest.raises(ModelError, match="outside the model's own bound"):
+        simulate(spec, 50)
+    population_from_spec(parse_model("factor f: y1, y2, y3, y4\nbound variance(y4) <= 0.1\n"
+                                      "start variance(y4) = 0.05\n"))  # within the bound: taken
 
 
 def test_the_power_report_says_what_the_plan_assumes_and_what_ordinal_items_change(tmp_path):
@@ -440,3 +468,93 @@ def test_the_ordinal_bootstrap_refuses_a_way_of_handling_gaps_it_would_not_use(t
     assert main(["bootstrap", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "o.csv"), "--ordinal", "all",
                  "--incomplete-rows", "listwise", "--replications", "10"]) == 2
     assert "so --incomplete-rows cannot apply" in capsys.readouterr().err
+
+
+def test_the_cutoff_reading_says_what_a_simulated_cutoff_means_and_rows_left_out_come_first(hs_data):
+    # a cutoff at 95% is a value 95% of the misspecified model's samples pass (McNeish & Wolf 2023): a value beyond it
+    # does not make misfit that large 'likely' (new-user trial), it fails to rule it out; and the rows listwise
+    # deletion left out (counted by pandas) came after the cautions at the very end
+    from cfa_tool.reporting.reports import report_of
+    from cfa_tool.reporting.workflow_tables import CUTOFF_BEYOND, CUTOFF_WITHIN
+
+    data = hs_data.copy()
+    data.loc[data.index[::7], "x4"] = np.nan
+    left_out = int(data["x4"].isna().sum())
+    cut = cfa_tool.cutoffs(THREE_FACTORS, data, replications=30, seed=2, workers=1, missing="listwise")
+    report = report_of(cut)
+    assert report.warnings[0].startswith(f"Listwise deletion left out {left_out} of {len(data)} rows")
+    assert not any(f"left out {left_out} of" in note for note in report.notes)
+    readings = {(c.index.upper(), f"{100 * c.level:.0f}%"): c for c in cut.cutoffs}
+    checked = 0
+    for row in report.tables[0].rows:
+        c = readings[(row[0], row[1])]
+        if c.cutoff is None:
+            continue
+        misfit_side = c.observed < c.cutoff if c.index == "cfi" else c.observed > c.cutoff  # the rule's two sides
+        assert row[-1] == (CUTOFF_BEYOND if misfit_side else CUTOFF_WITHIN)
+        checked += 1
+    assert checked  # at least one cutoff exists with these seeds
+    assert "likely" not in " ".join(r[-1] for r in report.tables[0].rows).replace("unlikely", "")
+    assert "95% of the samples from the model with" in report.tables[0].note
+    assert "does not show that misfit that large is present" in report.tables[0].note
+
+
+NEAR_ZERO_MODEL = "factor f: y1, y2, y3, y4\n"
+
+
+def _near_zero_rows():
+    """80 rows of NEAR_ZERO_MODEL whose item y4 has a residual variance near zero (.05; invented population values)."""
+    return simulate(parse_model(NEAR_ZERO_MODEL + "start variance(f) = 0.9\nstart loading(f, y2), loading(f, y3) = 0.7\n"
+                                "start loading(f, y4) = 1\nstart variance(y4) = 0.05\n"
+                                "start variance(y1), variance(y2), variance(y3) = 0.5\n"), 80, seed=5).frame
+
+
+def test_bootstrap_counts_resamples_whose_solution_is_not_admissible():
+    # an item whose residual variance is near zero (.05 in the population, N = 80): its estimate falls below zero in
+    # a share of resamples near Phi(-estimate / SE) (the estimate's asymptotic normal distribution, by scipy); held
+    # at a bound of zero instead, the same resamples hold it there, which a fit calls not admissible as well
+    from scipy import stats
+
+    from cfa_tool.reporting.reports import report_of
+
+    model, data = NEAR_ZERO_MODEL, _near_zero_rows()
+    row = next(r for r in cfa_tool.fit(model, data).estimates if r.kind == "residual_variance"
+               and r.variables == ("y4",))
+    free = cfa_tool.bootstrap(model, data, replications=200, seed=4, workers=1)
+    bounded = cfa_tool.bootstrap(model + "bound variance(y4) >= 0\n", data, replications=200, seed=4, workers=1)
+    assert free.inadmissible / free.converged == pytest.approx(stats.norm.cdf(-row.estimate / row.se), abs=0.1)
+    assert abs(bounded.inadmissible - free.inadmissible) <= 2
+    assert free.inadmissible_named == f"negative residual variance (the residual variance of y4) in {free.inadmissible}"
+    assert bounded.inadmissible_named == f"the residual variance of y4 held at a bound in {bounded.inadmissible}"
+    assert report_of(bounded).warnings[0].startswith(f"{bounded.inadmissible} of the {bounded.converged} converged "
+                                                     f"resamples have a solution that is not admissible")
+    assert bounded.to_dict()["result"]["inadmissible"] == bounded.inadmissible
+
+
+def test_cutoffs_count_samples_whose_solution_is_not_admissible():
+    # a fit whose residual variance of y4 is held at its bound of zero: the samples drawn from the fitted model have
+    # that parameter on the boundary, where an estimate lands on the bound in about half of the samples (Self &
+    # Liang 1987); a fit calls such a solution not admissible, and the cutoffs' report now says how many samples so
+    from cfa_tool.assessment.admissibility import ProblemKind
+    from cfa_tool.reporting.reports import report_of
+
+    model, data = NEAR_ZERO_MODEL, _near_zero_rows()
+    cut = cfa_tool.cutoffs(model + "bound variance(y4) >= 0\n", data, replications=100, seed=2, workers=1)
+    assert any(p.kind is ProblemKind.ON_BOUND for p in cut.fit.problems)
+    (count, named), _ = cut.inadmissible
+    assert count / cut.converged_correct == pytest.approx(0.5, abs=0.15)  # 4 binomial SDs of 100 samples
+    assert named == f"the residual variance of y4 held at a bound in {count}"
+    assert any(w.startswith(f"{count} of the {cut.converged_correct} converged samples from the fitted model")
+               for w in report_of(cut).warnings)
+    assert cut.to_dict()["result"]["inadmissible_correct"] == count
+
+
+def test_ordinal_power_simulation_counts_estimates_held_at_a_bound():
+    # a loading whose population value (.7) is its upper bound: on the boundary, an estimate lands on the bound in
+    # about half of the samples (Self & Liang 1987); each ordinal refit judges itself as a fit does
+    spec = parse_model("factor f: y1, y2, y3, y4\nordinal y1, y2, y3, y4\nscale f by variance\n"
+                       "bound loading(f, y2) <= 0.7\nstart loading(f, y1), loading(f, y2), loading(f, y3), "
+                       "loading(f, y4) = 0.7\n")
+    result = monte_carlo_power(spec, 200, replications=40, seed=1, workers=1, categories=4)
+    assert result.inadmissible / result.converged == pytest.approx(0.5, abs=0.32)  # 4 binomial SDs of 40 samples
+    assert result.inadmissible_named == f"the loading of y2 on f held at a bound in {result.inadmissible}"
