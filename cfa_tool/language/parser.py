@@ -270,6 +270,7 @@ class _Builder:
         scaling: list[ScaleSetting] = []
         invariant: list[str] = []
         noninvariant: list[ParameterRef] = []
+        equal_across_groups: list[Name] = []
         ordinal: list[Name] = []
         reversed_items: list[ReverseKeying] = []
         method_factors: list[Name] = []
@@ -350,6 +351,7 @@ class _Builder:
                         raise self.error(f"'{text}' is not something that can be held equal across groups; {hint}", where)
                     if GROUP_EQUALITY_WORDS[text] not in invariant:
                         invariant.append(GROUP_EQUALITY_WORDS[text])
+                    equal_across_groups.append(Name(text, where))
             elif kind == "noninvariant_stmt":
                 noninvariant.extend(self.refs(stmt.children[0]))
             elif kind == "ordinal_stmt":
@@ -406,6 +408,7 @@ class _Builder:
             scaling=tuple(scaling),
             invariant=tuple(invariant),
             noninvariant=tuple(noninvariant),
+            equal_across_groups=tuple(equal_across_groups),
             ordinal=tuple(ordinal),
             reversed=tuple(reversed_items),
             method=tuple(method_factors),
