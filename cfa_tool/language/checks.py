@@ -127,8 +127,8 @@ def _check_scaling(spec: Spec) -> None:
         for ref in setting.refs:
             if ref.names[0] in block:
                 continue
-            if ref.group is None and ref.kind == "loading" and ref.names[0] in factors:
-                fixed_scale.setdefault(ref.names[0], ref)
+            if ref.group is None and ref.kind == "loading" and ref.names[0] in factors and setting.value != 0:
+                fixed_scale.setdefault(ref.names[0], ref)  # a loading fixed at 0 sets no scale
             elif ref.group is None and ref.kind == "variance" and ref.names[0] in factors:
                 fixed_scale.setdefault(ref.names[0], ref)
     for setting in spec.scaling:

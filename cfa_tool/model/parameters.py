@@ -285,13 +285,19 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             f = factor.name.text
             load_keys = [(g, "loading", (f, ind.text)) for ind in factor.indicators]
             var_key = (g, "variance", (f,))
-            if entries[var_key]["origin"] == "user" or any(entries[k]["origin"] == "user" for k in load_keys):
+            # a loading the model fixes at 0 (an item set apart, as for a nested comparison) sets no scale: the
+            # automatic scale is kept and uses the factor's other loadings
+            zero = {k for k in load_keys if entries[k]["origin"] == "user" and entries[k]["fixed"] == 0}
+            if entries[var_key]["origin"] == "user" or any(entries[k]["origin"] == "user" for k in load_keys
+                                                           if k not in zero):
                 continue
+            load_keys = [k for k in load_keys if k not in zero]
             method = spec.scaling_of(f)
             if method == "marker":
                 candidates = [k for k in load_keys if k not in freed]
                 if not candidates:
-                    raise _scale_error(spec, f, "every loading of it is freed, so no indicator can set its scale")
+                    raise _scale_error(spec, f, "every loading of it is freed or fixed at 0, so no indicator can set "
+                                                "its scale")
                 marker, value = marker_of(candidates, {x for g_, x in reverse_keyed if g_ == f})
                 entries[marker].update(fixed=value, origin="scale")
             elif method == "variance":

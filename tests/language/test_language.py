@@ -306,3 +306,19 @@ def test_equal_start_values_and_a_quoted_latent_are_accepted():
     assert spec.scaling_of("latent") == "variance" and spec.scaling_of("g") == "marker"
     spec = parse_model("exploratory factors f1, f2 from a, b, c, d, e, g\nfactor h: p, q, r\nscale latent by variance\n")
     assert spec.scaling_of("h") == "variance"
+
+
+def test_a_loading_fixed_at_zero_sets_no_scale():
+    # hostile trial 10, case 09: 'fix loading(f, b) = 0' removed the automatic marker, and the model was refused
+    # with "factor 'f' has no scale"; a zero loading cannot set a scale, so the marker stays (the next indicator
+    # when the first loading is the one fixed at 0), and a named scale beside it is no second scale
+    def scale_of(text):
+        table = build_parameter_table(parse_model(text))
+        return {p.label: (p.free, p.offset, p.origin) for p in table.parameters if p.label.startswith(("loading(f", "factor_variance(f"))}
+
+    labels = scale_of("factor f: a, b, c\nfix loading(f, b) = 0\n")
+    assert labels["loading(f, a)"] == (False, 1.0, "scale") and labels["loading(f, b)"] == (False, 0.0, "user")
+    labels = scale_of("factor f: a, b, c, d\nfix loading(f, a) = 0\n")
+    assert labels["loading(f, b)"] == (False, 1.0, "scale") and labels["factor_variance(f)"][0]
+    labels = scale_of("factor f: a, b, c\nfix loading(f, b) = 0\nscale f by variance\n")
+    assert labels["factor_variance(f)"] == (False, 1.0, "scale") and labels["loading(f, a)"][0]
