@@ -1081,6 +1081,10 @@ def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
     if isinstance(ordinal, str) and ordinal != "all" and ordinal.strip() in ("", ","):
         raise OptionError("ordinal names no items: give 'all' or item names")
     if ordinal == "all":
+        if "all" in spec.observed_names:
+            raise OptionError("'all' is both the word for every item and an item of the model, so ordinal='all' (--ordinal all) "
+                              "could mean either; to make the item 'all' ordinal alone give it as a list "
+                              "(ordinal=['all'], or --ordinal '\"all\"' on the command line), or rename it")
         items |= set(spec.observed_names)
     elif ordinal:
         for name in ([ordinal] if isinstance(ordinal, str) else ordinal):
