@@ -554,8 +554,10 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
     refs = [r for r in all_refs(spec) if r.group is not None]
     mean_refs = [r for r in all_refs(spec) if r.kind in ("intercept", "mean")]
     if mean_refs and not means:
-        raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only with groups (--group-column COLUMN) "
-                          f"or with missing data (--incomplete-rows full-information)", mean_refs[0])
+        raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only in a fit with a mean "
+                          f"structure, and this one has none: give groups (--group-column COLUMN) or fit by "
+                          f"full-information ML (--incomplete-rows full-information, the default when answers are "
+                          f"missing)", mean_refs[0])
     if not multi:
         if refs:
             raise _fail(spec, f"'in group {refs[0].group}' needs groups: give the group column (--group-column COLUMN)", refs[0])

@@ -940,7 +940,9 @@ def _description(spec: Spec, groups: tuple[str, ...] | None, ordinal_items: tupl
     from cfa_tool.model.parameters import build_parameter_table
 
     ordinal = {x: 1 for x in ordinal_items} if ordinal_items is not None else None  # thresholds do not change it
-    return describe(spec, build_parameter_table(spec, groups, ordinal=ordinal))
+    # the description reads the factors' scales, which the mean structure does not change; with it, a model that
+    # names intercepts or factor means (fitted with a mean structure, else the fit refused it) is described too
+    return describe(spec, build_parameter_table(spec, groups, mean_structure=True, ordinal=ordinal))
 
 
 def converged(result: FitResult) -> FitResult:
