@@ -216,6 +216,17 @@ def _error(text: str) -> ModelError:
         # hostile trial 10, 02: 'scale latent by ...' with exploratory blocks only applied to no factor, silently
         ("exploratory factors f1, f2 from a, b, c, d, e, g\nscale latent by effects\n", 2, 1,
          "'scale latent by effects' applies to no factor"),
+        # hostile trial 10, 14: lists broken over lines without the comma that continues them
+        ("factor f: a, b, \\\n    c\n", 1, 17, "a backslash does not continue a line in a model file; a list "
+                                            "continues on the next line only after a comma at the end of the line"),
+        ("factor f:\n    a, b, c\n", 1, 10, "the line ends too early; expected a name or quoted text (\"...\"); a "
+                                          "list continues on the next line only after a comma at the end of the line"),
+        ("factor f: a, b\n    c, d\n", 2, 5, "unknown statement 'c'; if line 2 goes on with the list of line 1, end "
+                                           "line 1 with a comma (a list continues on the next line only after a "
+                                           "comma at the end of the line)"),
+        ("factor f: a, b\n\n# more\n    c\n", 4, 5, "if line 4 goes on with the list of line 1, end line 1 with a comma"),
+        ("factor f: a, b\n   , c, d\n", 2, 4, "line 2 starts with a comma; a list continues on the next line only "
+                                            "after a comma at the end of the line: move it to the end of line 1"),
         # hostile trial 10, 08: a factor named 'latent' and 'scale latent by ...' rescaled every factor
         ("factor latent: a, b, c\nfactor g: d, e, h\nscale latent by variance\n", 3, 1,
          "'latent' is both a factor of this model and the word for every factor"),
