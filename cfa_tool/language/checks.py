@@ -421,7 +421,8 @@ def _check_start_values(spec: Spec) -> None:
 
 def _check_indicator_counts(spec: Spec) -> None:
     fixed_keys = {r.key() for s in spec.fixed for r in s.refs if r.group is None}
-    constrained = fixed_keys | {r.key() for g in spec.equal for r in g}
+    set_apart = {r.key() for s in spec.fixed for r in s.refs if r.group is None and s.value == 0}  # sets no scale
+    constrained = (fixed_keys - set_apart) | {r.key() for g in spec.equal for r in g}
     exo = exogenous_factors(spec)
     zero = {p.key() for p in spec.uncorrelated}
     covary_partners: dict[str, list[str]] = {}
@@ -442,7 +443,10 @@ def _check_indicator_counts(spec: Spec) -> None:
                     factor.name.location,
                 )
         elif len(inds) == 2:
-            loads_constrained = sum(("loading", (name, x)) in constrained for x in inds) >= 2
+            # the two loadings and the factor's variance give one covariance: identified when two of the three are
+            # fixed (at values other than 0) or held equal, e.g. a loading and the variance both fixed
+            loads_constrained = (sum(("loading", (name, x)) in constrained for x in inds)
+                                 + (("variance", (name,)) in constrained)) >= 2
             if name in exo_set:
                 partners = [o for o in exo if o != name and tuple(sorted((name, o))) not in zero][:1]
             else:
