@@ -127,11 +127,21 @@ def _check_scaling(spec: Spec) -> None:
         for ref in setting.refs:
             if ref.names[0] in block:
                 continue
-            if ref.group is None and ref.kind == "loading" and ref.names[0] in factors:
-                fixed_scale.setdefault(ref.names[0], ref)
+            if ref.group is None and ref.kind == "loading" and ref.names[0] in factors and setting.value != 0:
+                fixed_scale.setdefault(ref.names[0], ref)  # a loading fixed at 0 sets no scale
             elif ref.group is None and ref.kind == "variance" and ref.names[0] in factors:
                 fixed_scale.setdefault(ref.names[0], ref)
     for setting in spec.scaling:
+        if not setting.factors:  # 'scale latent by ...': every factor outside exploratory blocks
+            if "latent" in factors:
+                raise _fail(spec, f"'latent' is both a factor of this model and the word for every factor in 'scale "
+                                  f"latent by {setting.method}'; to scale the factor latent alone write it in double "
+                                  f"quotes ('scale \"latent\" by {setting.method}'), or rename the factor",
+                            setting.location)
+            if factors and factors <= block:
+                raise _fail(spec, f"'scale latent by {setting.method}' applies to no factor: this model's factors are "
+                                  f"all in exploratory blocks, whose factors have variance 1 before rotation; remove "
+                                  f"the statement", setting.location)
         for name in setting.factors:
             if name.text in named:
                 raise _fail(spec, f"'{name}' is named by two 'scale' statements (the first on line "
@@ -139,7 +149,7 @@ def _check_scaling(spec: Spec) -> None:
             named[name.text] = name.location
             if name.text in fixed_scale:
                 ref = fixed_scale[name.text]
-                raise _fail(spec, f"'scale {written_name(name)} by {setting.method}' and the fix of {ref} (line {ref.location.line}) both "
+                raise _fail(spec, f"'scale {written_name(name.text)} by {setting.method}' and the fix of {ref} (line {ref.location.line}) both "
                                   f"set the scale of '{name}'; keep one of them", name.location)
         for name in setting.factors:
             if name.text not in factors:
@@ -380,6 +390,7 @@ def _check_contradictions(spec: Spec) -> None:
         for ref in bound.refs:
             if _gkey(ref) in fixed:
                 raise _fail(spec, f"{ref} is fixed, so a bound on it has no effect; remove one of the two", ref.location)
+    _check_start_values(spec)
     lower: dict[tuple, float] = {}
     upper: dict[tuple, float] = {}
     for bound in spec.bounds:
@@ -408,9 +419,32 @@ def _check_contradictions(spec: Spec) -> None:
             raise _fail(spec, "'equal' within 'in group' applies to one group; to hold parameters equal across groups use 'invariance LEVEL' or 'equal across groups: ...'", group[0].location)
 
 
+def _check_start_values(spec: Spec) -> None:
+    """One start value for each parameter, and one for parameters held equal (which are one parameter): two
+    different values would leave one of them unused without a word (and simulate would draw from the other)."""
+    started: dict[tuple, tuple[float, ParameterRef]] = {}
+    for setting in spec.starts:
+        for ref in setting.refs:
+            key = _gkey(ref)
+            if key in started and started[key][0] != setting.value:
+                value, first = started[key]
+                raise _fail(spec, f"{ref} is given the start value {setting.value:g} here but {value:g} on line "
+                                  f"{first.location.line}; give it one", ref.location)
+            started.setdefault(key, (setting.value, ref))
+    for group in spec.equal:
+        values = [(started[_gkey(r)], r) for r in group if _gkey(r) in started]
+        for (value, first), ref in values[1:]:
+            (value0, first0), ref0 = values[0]
+            if value != value0:
+                raise _fail(spec, f"{ref0} and {ref} are held equal (line {group[0].location.line}) but given "
+                                  f"different start values: {value0:g} on line {first0.location.line} and {value:g} on "
+                                  f"line {first.location.line}; give them one", first.location)
+
+
 def _check_indicator_counts(spec: Spec) -> None:
     fixed_keys = {r.key() for s in spec.fixed for r in s.refs if r.group is None}
-    constrained = fixed_keys | {r.key() for g in spec.equal for r in g}
+    set_apart = {r.key() for s in spec.fixed for r in s.refs if r.group is None and s.value == 0}  # sets no scale
+    constrained = (fixed_keys - set_apart) | {r.key() for g in spec.equal for r in g}
     exo = exogenous_factors(spec)
     zero = {p.key() for p in spec.uncorrelated}
     covary_partners: dict[str, list[str]] = {}
@@ -431,7 +465,10 @@ def _check_indicator_counts(spec: Spec) -> None:
                     factor.name.location,
                 )
         elif len(inds) == 2:
-            loads_constrained = sum(("loading", (name, x)) in constrained for x in inds) >= 2
+            # the two loadings and the factor's variance give one covariance: identified when two of the three are
+            # fixed (at values other than 0) or held equal, e.g. a loading and the variance both fixed
+            loads_constrained = (sum(("loading", (name, x)) in constrained for x in inds)
+                                 + (("variance", (name,)) in constrained)) >= 2
             if name in exo_set:
                 partners = [o for o in exo if o != name and tuple(sorted((name, o))) not in zero][:1]
             else:

@@ -192,18 +192,46 @@ def _syntax_error(exc: UnexpectedInput, source: str, lines: tuple[str, ...]) -> 
             word = _word_at(lines, line, column)
             message += f'; a name with letters beyond A-Z is written in double quotes: "{printable(word)}"'
         span = _dashed_span_at(lines, line, column)
-        if span is not None:
+        if exc.char == "\\" and 1 <= line <= len(lines) and not lines[line - 1][column:].strip():
+            message = f"a backslash does not continue a line in a model file; {CONTINUES}"
+        elif span is not None:
             message += f"; a range of names is written with two dots: '{span}'"
         elif char in _PUNCTUATION:
             message += f"; {QUOTE_HINT}"
     elif isinstance(exc, UnexpectedToken):
-        message = _unexpected_token_message(exc)
+        message = _continuation_message(exc, lines, line, column) or _unexpected_token_message(exc)
+        if exc.token.type == "_NL" and {"NAME", "STRING"} & set(exc.accepts or exc.expected):
+            message += f"; {CONTINUES}"
         if _name_goes_on(exc, lines, line, column):
             message += f"; {QUOTE_HINT}, and names in a list are separated by commas"
     else:  # pragma: no cover - Lark has no other public kinds
         message = "the model text cannot be read here"
     source_line = lines[line - 1] if 1 <= line <= len(lines) else None
     return ModelError(message, Location(source, line, column), source_line)
+
+
+#: how a statement is written over several lines (grammar/model.lark: a line end is allowed after a list's comma)
+CONTINUES = "a list continues on the next line only after a comma at the end of the line"
+_LIST_LINE = re.compile(r'\s*(?:\w+|"[^"\n]*")(?:\s*,\s*(?:\w+|"[^"\n]*"))*\s*,?\s*(?:#.*)?\Z')
+
+
+def _continuation_message(exc: UnexpectedToken, lines: tuple[str, ...], line: int, column: int) -> str | None:
+    """The message for a list broken over lines without the comma that continues it: a line that starts with the
+    comma, or a line of names read as a new statement (the comma missing at the end of the line before); None for
+    other errors."""
+    if not 1 <= line <= len(lines) or "FACTOR" not in set(exc.accepts or exc.expected):  # not a statement's start
+        return None
+    before = next((k for k in range(line - 1, 0, -1) if lines[k - 1].split("#", 1)[0].strip()), None)
+    if before is None:
+        return None
+    text = lines[line - 1]
+    if exc.token.type == "COMMA" and not text[:column - 1].strip():
+        return f"line {line} starts with a comma; {CONTINUES}: move it to the end of line {before}"
+    if (exc.token.type in ("NAME", "STRING") and not close_names(str(exc.token), STATEMENT_WORDS)
+            and _LIST_LINE.match(text) and not lines[before - 1].split("#", 1)[0].rstrip().endswith(",")):
+        return (f"unknown statement '{_clip(exc.token)}'; if line {line} goes on with the list of line {before}, end "
+                f"line {before} with a comma ({CONTINUES})")
+    return None
 
 
 #: what a syntax error adds where a name seems to go on with spaces or punctuation (item texts as column names)
@@ -299,6 +327,7 @@ class _Builder:
         scaling: list[ScaleSetting] = []
         invariant: list[str] = []
         noninvariant: list[ParameterRef] = []
+        equal_across_groups: list[Name] = []
         ordinal: list[Name] = []
         reversed_items: list[ReverseKeying] = []
         method_factors: list[Name] = []
@@ -379,6 +408,7 @@ class _Builder:
                         raise self.error(f"'{text}' is not something that can be held equal across groups; {hint}", where)
                     if GROUP_EQUALITY_WORDS[text] not in invariant:
                         invariant.append(GROUP_EQUALITY_WORDS[text])
+                    equal_across_groups.append(Name(text, where))
             elif kind == "noninvariant_stmt":
                 noninvariant.extend(self.refs(stmt.children[0]))
             elif kind == "ordinal_stmt":
@@ -435,6 +465,7 @@ class _Builder:
             scaling=tuple(scaling),
             invariant=tuple(invariant),
             noninvariant=tuple(noninvariant),
+            equal_across_groups=tuple(equal_across_groups),
             ordinal=tuple(ordinal),
             reversed=tuple(reversed_items),
             method=tuple(method_factors),

@@ -262,6 +262,8 @@ class Spec:
     scaling: tuple[ScaleSetting, ...] = ()
     invariant: tuple[str, ...] = ()
     noninvariant: tuple[ParameterRef, ...] = ()
+    # the words of each 'equal across groups:' statement as written ('factor means'), where they are
+    equal_across_groups: tuple[Name, ...] = ()
     ordinal: tuple[Name, ...] = ()
     reversed: tuple[ReverseKeying, ...] = ()
     method: tuple[Name, ...] = ()  # factors of method, not of a trait (wording, acquiescence): no reliability

@@ -37,7 +37,7 @@ from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.options import Option
 from cfa_tool.language.checks import all_refs, exogenous_factors
 from cfa_tool.language.names import reference_text, written_name
-from cfa_tool.language.spec import INVARIANCE_CLASSES, ParameterRef, Spec, equality_words
+from cfa_tool.language.spec import GROUP_EQUALITY_WORDS, INVARIANCE_CLASSES, ParameterRef, Spec, equality_words
 
 MATRIX_CODES = {"L": 0, "B": 1, "P": 2, "T": 3, "N": 4, "M": 5, "K": 6}
 
@@ -286,13 +286,19 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             f = factor.name.text
             load_keys = [(g, "loading", (f, ind.text)) for ind in factor.indicators]
             var_key = (g, "variance", (f,))
-            if entries[var_key]["origin"] == "user" or any(entries[k]["origin"] == "user" for k in load_keys):
+            # a loading the model fixes at 0 (an item set apart, as for a nested comparison) sets no scale: the
+            # automatic scale is kept and uses the factor's other loadings
+            zero = {k for k in load_keys if entries[k]["origin"] == "user" and entries[k]["fixed"] == 0}
+            if entries[var_key]["origin"] == "user" or any(entries[k]["origin"] == "user" for k in load_keys
+                                                           if k not in zero):
                 continue
+            load_keys = [k for k in load_keys if k not in zero]
             method = spec.scaling_of(f)
             if method == "marker":
                 candidates = [k for k in load_keys if k not in freed]
                 if not candidates:
-                    raise _scale_error(spec, f, "every loading of it is freed, so no indicator can set its scale")
+                    raise _scale_error(spec, f, "every loading of it is freed or fixed at 0, so no indicator can set "
+                                                "its scale")
                 marker, value = marker_of(candidates, {x for g_, x in reverse_keyed if g_ == f})
                 entries[marker].update(fixed=value, origin="scale")
             elif method == "variance":
@@ -352,11 +358,18 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             for k in keys[1:]:
                 union(keys[0], k)
     if multi:
+        tied_kinds: set[str] = set()  # kinds of which at least one parameter is held equal across groups
         for key in entries:
             if key[0] > 0 and tied_across_groups(key[1:]):
                 first = (0, *key[1:])
                 if entries[key]["fixed"] is None and entries[first]["fixed"] is None:
                     union(first, key)
+                    tied_kinds.add(_entry_kind(entries[key]))
+                elif key[1] == "mean" and entries[key]["fixed"] is None:
+                    # a factor mean identified in this group and held equal: it takes the first group's (fixed) mean
+                    entries[key].update(fixed=entries[first]["fixed"], origin="user")
+                    tied_kinds.add("mean")
+        _check_equalities_hold(spec, tied_kinds)
 
     group_fixed: dict[tuple, float] = {}
     for key, e in entries.items():
@@ -473,6 +486,26 @@ def _entry_kind(entry: dict) -> str:
     return _kind_for(entry["matrix"], entry["row"] == entry["col"])
 
 
+def _check_equalities_hold(spec: Spec, tied_kinds: set[str]) -> None:
+    """Each class an 'equal across groups:' statement names must hold at least one parameter equal across groups:
+    one whose every parameter is fixed in some group (by a 'fix', by a factor's scale, or, for factor means, at 0
+    in every group while the intercepts are not held equal) changes nothing, and the methods text would claim an
+    equality that was never imposed."""
+    for words in spec.equal_across_groups:
+        held = GROUP_EQUALITY_WORDS[words.text]
+        if any(kind in tied_kinds for kind in INVARIANCE_CLASSES[held]):
+            continue
+        if held == "means":
+            why = ("the factor means are fixed at 0 in every group unless the intercepts and loadings of their "
+                   "indicators are held equal too ('invariance scalar', or 'equal across groups: loadings, "
+                   "intercepts, factor means')")
+        else:
+            why = (f"every one of the model's {words.text} is fixed in some group (by a 'fix' statement, a factor's "
+                   f"scale or a 'noninvariant' exemption)")
+        raise _fail(spec, f"'equal across groups: {words.text}' holds nothing equal: {why}; remove it or free "
+                          f"what it should hold", words)
+
+
 def _invariant_kinds(spec: Spec) -> set[str]:
     return {kind for word in spec.invariant for kind in INVARIANCE_CLASSES[word]}
 
@@ -523,8 +556,10 @@ def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, mea
     mean_refs = [r for r in all_refs(spec) if r.kind in ("intercept", "mean")]
     groups = Option.GROUP_COLUMN.given("COLUMN")  # as the caller gives it: --group-column COLUMN, group='COLUMN'
     if mean_refs and not means:
-        raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only with groups ({groups}) "
-                          f"or with missing data ({Option.INCOMPLETE_ROWS.given('full-information')})", mean_refs[0])
+        raise _fail(spec, f"{mean_refs[0]}: intercepts and factor means are estimated only in a fit with a mean "
+                          f"structure, and this one has none: give groups ({groups}) or fit by full-information ML "
+                          f"({Option.INCOMPLETE_ROWS.given('full-information')}, the default when answers are "
+                          f"missing)", mean_refs[0])
     if not multi:
         if refs:
             raise _fail(spec, f"'in group {refs[0].group}' needs groups: give the group column ({groups})", refs[0])

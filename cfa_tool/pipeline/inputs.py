@@ -991,7 +991,9 @@ def _description(spec: Spec, groups: tuple[str, ...] | None, ordinal_items: tupl
     from cfa_tool.model.parameters import build_parameter_table
 
     ordinal = {x: 1 for x in ordinal_items} if ordinal_items is not None else None  # thresholds do not change it
-    return describe(spec, build_parameter_table(spec, groups, ordinal=ordinal))
+    # the description reads the factors' scales, which the mean structure does not change; with it, a model that
+    # names intercepts or factor means (fitted with a mean structure, else the fit refused it) is described too
+    return describe(spec, build_parameter_table(spec, groups, mean_structure=True, ordinal=ordinal))
 
 
 def converged(result: FitResult) -> FitResult:
@@ -1132,6 +1134,10 @@ def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
     if isinstance(ordinal, str) and ordinal != "all" and ordinal.strip() in ("", ","):
         raise OptionError("ordinal names no items: give 'all' or item names")
     if ordinal == "all":
+        if "all" in spec.observed_names:
+            raise OptionError("'all' is both the word for every item and an item of the model, so ordinal='all' (--ordinal all) "
+                              "could mean either; to make the item 'all' ordinal alone give it as a list "
+                              "(ordinal=['all'], or --ordinal '\"all\"' on the command line), or rename it")
         items |= set(spec.observed_names)
     elif ordinal:
         for name in ([ordinal] if isinstance(ordinal, str) else ordinal):

@@ -64,8 +64,8 @@ CASES = [
     ("fit: intercepts without groups",
      lambda d: cfa_tool.fit(d / "means.cfa", d / "rider.csv", missing="listwise"),
      lambda d: ["fit", str(d / "means.cfa"), "--data", str(d / "rider.csv"), "--incomplete-rows", "listwise"],
-     "with groups (group='COLUMN') or with missing data (missing='full-information')",
-     "with groups (--group-column COLUMN) or with missing data (--incomplete-rows full-information)"),
+     "give groups (group='COLUMN') or fit by full-information ML (missing='full-information',",
+     "give groups (--group-column COLUMN) or fit by full-information ML (--incomplete-rows full-information,"),
     ("fit: a code of no answer that is an answer of a declared scale",
      lambda d: cfa_tool.fit(d / "reversed.cfa", d / "rider.csv", missing_codes=[5]),
      lambda d: ["fit", str(d / "reversed.cfa"), "--data", str(d / "rider.csv"), "--missing-codes", "5"],
@@ -100,7 +100,7 @@ CASES = [
      lambda d: cfa_tool.bootstrap(d / "means.cfa", d / "rider.csv", 10, missing="listwise"),
      lambda d: ["bootstrap", str(d / "means.cfa"), "--data", str(d / "rider.csv"), "--replications", "10",
                 "--incomplete-rows", "listwise"],
-     "with groups (group='COLUMN')", "with groups (--group-column COLUMN)"),
+     "give groups (group='COLUMN')", "give groups (--group-column COLUMN)"),
 ]
 
 

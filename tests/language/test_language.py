@@ -200,6 +200,40 @@ def _error(text: str) -> ModelError:
         ("factor f: a, b, c\nreversed b on 1\n", 2, 16, "expected 'to'"),
         ("factor f: a, b, c\nreverse b on 1 to 5\n", 2, 1, "unknown statement 'reverse'; did you mean 'reversed'?"),
         ("factor f: a, b, c\nanswer 'No' = 0\n", 2, 1, "did you mean 'answers'?"),  # of answers recorded as words
+        # hostile trial 10, 15: a named scale with a fix of the same factor ended in an internal TypeError while
+        # this message was written (a Name given where its text was meant)
+        ("factor a: b, c, d\nfactor e: g, h, i\nscale a by variance\nfix loading(a, b) = 0.7\n", 3, 7,
+         "'scale a by variance' and the fix of loading(a, b) (line 4) both set the scale of 'a'"),
+        ("factor a: b, c, d\nfactor e: g, h, i\nscale a by effects\nfix loading(a, b) = 0.7\n", 3, 7,
+         "'scale a by effects' and the fix of loading(a, b) (line 4) both set the scale of 'a'"),
+        ("factor a: b, c, d\nfactor e: g, h, i\nscale a, e by variance\nfix variance(e) = 2\n", 3, 10,
+         "'scale e by variance' and the fix of variance(e) (line 4) both set the scale of 'e'"),
+        ('factor "a b": c, d, g\nscale "a b" by variance\nfix variance("a b") = 2\n', 2, 7,
+         "'scale \"a b\" by variance' and the fix of variance(\"a b\") (line 3)"),
+        # hostile trial 10, 06: two start values for parameters held equal were resolved silently (simulate drew
+        # from one of them); the same parameter started twice too
+        ("factor f: a, b, c\nequal loading(f, b), loading(f, c)\nstart loading(f, b) = 0.5\n"
+         "start loading(f, c) = 1.5\n", 4, 7, "loading(f, b) and loading(f, c) are held equal (line 2) but given "
+                                              "different start values: 0.5 on line 3 and 1.5 on line 4"),
+        ("factor f: a, b, c\nstart variance(a) = 0.5\nstart variance(a) = 2\n", 3, 7,
+         "variance(a) is given the start value 2 here but 0.5 on line 2"),
+        # hostile trial 10, 02: 'scale latent by ...' with exploratory blocks only applied to no factor, silently
+        ("exploratory factors f1, f2 from a, b, c, d, e, g\nscale latent by effects\n", 2, 1,
+         "'scale latent by effects' applies to no factor"),
+        # hostile trial 10, 14: lists broken over lines without the comma that continues them
+        ("factor f: a, b, \\\n    c\n", 1, 17, "a backslash does not continue a line in a model file; a list "
+                                            "continues on the next line only after a comma at the end of the line"),
+        ("factor f:\n    a, b, c\n", 1, 10, "the line ends too early; expected a name or quoted text (\"...\"); a "
+                                          "list continues on the next line only after a comma at the end of the line"),
+        ("factor f: a, b\n    c, d\n", 2, 5, "unknown statement 'c'; if line 2 goes on with the list of line 1, end "
+                                           "line 1 with a comma (a list continues on the next line only after a "
+                                           "comma at the end of the line)"),
+        ("factor f: a, b\n\n# more\n    c\n", 4, 5, "if line 4 goes on with the list of line 1, end line 1 with a comma"),
+        ("factor f: a, b\n   , c, d\n", 2, 4, "line 2 starts with a comma; a list continues on the next line only "
+                                            "after a comma at the end of the line: move it to the end of line 1"),
+        # hostile trial 10, 08: a factor named 'latent' and 'scale latent by ...' rescaled every factor
+        ("factor latent: a, b, c\nfactor g: d, e, h\nscale latent by variance\n", 3, 1,
+         "'latent' is both a factor of this model and the word for every factor"),
     ],
 )
 def test_error_messages(text, line, column, words):
@@ -276,3 +310,30 @@ ANSWERS_ERRORS = {
 def test_answers_statement_errors(statements):
     line, column, words = ANSWERS_ERRORS[statements]
     test_error_messages("factor f: a, b, c\n" + statements + "\n", line, column, words)
+
+
+def test_equal_start_values_and_a_quoted_latent_are_accepted():
+    # the same start value for parameters held equal is one value; a factor named 'latent' is scaled alone when
+    # the name is quoted, and 'scale latent by ...' with confirmatory factors beside a block applies to those
+    spec = parse_model("factor f: a, b, c\nequal loading(f, b), loading(f, c)\nstart loading(f, b), loading(f, c) = 0.8\n")
+    assert spec.starts[0].value == 0.8
+    spec = parse_model('factor latent: a, b, c\nfactor g: d, e, h\nscale "latent" by variance\n')
+    assert spec.scaling_of("latent") == "variance" and spec.scaling_of("g") == "marker"
+    spec = parse_model("exploratory factors f1, f2 from a, b, c, d, e, g\nfactor h: p, q, r\nscale latent by variance\n")
+    assert spec.scaling_of("h") == "variance"
+
+
+def test_a_loading_fixed_at_zero_sets_no_scale():
+    # hostile trial 10, case 09: 'fix loading(f, b) = 0' removed the automatic marker, and the model was refused
+    # with "factor 'f' has no scale"; a zero loading cannot set a scale, so the marker stays (the next indicator
+    # when the first loading is the one fixed at 0), and a named scale beside it is no second scale
+    def scale_of(text):
+        table = build_parameter_table(parse_model(text))
+        return {p.label: (p.free, p.offset, p.origin) for p in table.parameters if p.label.startswith(("loading(f", "factor_variance(f"))}
+
+    labels = scale_of("factor f: a, b, c\nfix loading(f, b) = 0\n")
+    assert labels["loading(f, a)"] == (False, 1.0, "scale") and labels["loading(f, b)"] == (False, 0.0, "user")
+    labels = scale_of("factor f: a, b, c, d\nfix loading(f, a) = 0\n")
+    assert labels["loading(f, b)"] == (False, 1.0, "scale") and labels["factor_variance(f)"][0]
+    labels = scale_of("factor f: a, b, c\nfix loading(f, b) = 0\nscale f by variance\n")
+    assert labels["factor_variance(f)"] == (False, 1.0, "scale") and labels["loading(f, a)"][0]

@@ -46,8 +46,12 @@ def test_three_factor_estimates_and_standard_errors(hs_data, hs_three):
         # the residual covariance with the second largest
         ("factor visual: x1..x3\nfactor textual: x4..x6\nfactor speed: x7..x9\ncovary x7, x8\n",
          "visual =~ x1 + x2 + x3\ntextual =~ x4 + x5 + x6\nspeed =~ x7 + x8 + x9\nx7 ~~ x8"),
+        # a loading fixed at 0 sets no scale: the first loading stays the marker (hostile trial 10, case 09: the
+        # model was refused, "factor 'visual' has no scale")
+        ("factor visual: x1..x3\nfactor textual: x4..x6\nfactor speed: x7..x9\nfix loading(visual, x2) = 0\n",
+         "visual =~ 1*x1 + 0*x2 + x3\ntextual =~ x4 + x5 + x6\nspeed =~ x7 + x8 + x9"),
     ],
-    ids=["cross-loading", "residual-covariance"],
+    ids=["cross-loading", "residual-covariance", "zero-loading"],
 )
 def test_freed_parameters(hs_data, ours_text, semopy_text):
     ours = cfa_tool.fit(ours_text, hs_data)

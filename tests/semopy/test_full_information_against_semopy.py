@@ -31,3 +31,28 @@ def test_fiml_estimates_agree_with_semopy(hs_holes):
             assert est[("residual_variance", (row["lval"],))] == pytest.approx(row["Estimate"], rel=1e-3)
             checked += 1
     assert checked == 18
+
+
+def test_a_fixed_intercept_in_a_full_information_fit_without_groups_agrees_with_semopy(hs_holes):
+    # hostile trial 10, case 11: 'fix intercept(x1) = 5' was refused in a full-information fit without groups ("only
+    # with groups or with missing data"), though that fit has a mean structure (two factors: semopy's fit of all
+    # nine tests takes minutes)
+    import semopy
+
+    data = hs_holes[[f"x{i}" for i in range(1, 7)]]
+    ours = cfa_tool.fit("factor visual: x1..x3\nfactor textual: x4..x6\nfix intercept(x1) = 5\n", data,
+                        missing="full-information")
+    model = semopy.ModelMeans("visual =~ x1 + x2 + x3\ntextual =~ x4 + x5 + x6\nx1 ~ 5*1")
+    model.fit(data, obj="ML", solver="L-BFGS-B")
+    table = model.inspect()
+    est = {(r.kind, r.variables): r.estimate for r in ours.estimates}
+    assert est[("intercept", ("x1",))] == 5.0
+    checked = 0
+    for _, row in table.iterrows():
+        if row["op"] == "~" and row["rval"] in ("visual", "textual"):
+            assert est[("loading", (row["rval"], row["lval"]))] == pytest.approx(row["Estimate"], rel=1e-3)
+            checked += 1
+        elif row["op"] == "~" and row["rval"] == "1":
+            assert est[("intercept", (row["lval"],))] == pytest.approx(row["Estimate"], rel=1e-3)
+            checked += 1
+    assert checked == 12
