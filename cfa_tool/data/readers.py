@@ -106,7 +106,7 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         raise DataError(f"'{path}' is not an Excel workbook, so a sheet cannot be chosen")
     if names_row is not None and suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         raise DataError(f"'{path}' is an {'SPSS' if suffix in SPSS_SUFFIXES else 'Stata'} file, whose variables have "
-                        f"their names, so a row of column names (--names-row) cannot apply")
+                        f"their names, so a row of column names ({Option.NAMES_ROW}) cannot apply")
     if suffix in EXCEL_SUFFIXES:
         notes: list[str] = []
         names: list[pd.Series] = []
@@ -305,7 +305,7 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if names_row is not None:
         first = _names_row_start(names_row, len(rows), first, where, "row")
         if not any(v not in (None, "") for v in rows[first]):
-            raise DataError(f"{where}: row {names_row}, named by --names-row, is empty")
+            raise DataError(f"{where}: row {names_row}, named by {Option.NAMES_ROW}, is empty")
         notes.append(_names_row_note(where, names_row, "row"))
     rows = rows[first:]  # empty rows above the header
     title = None if names_row is not None else _title_above_header(rows)
@@ -494,7 +494,7 @@ def _check_uncomputed_formulas(path: Path, title: str, first: int) -> None:
 def _header_taken(where: str) -> str:
     """Which row was read as the header, and what to do when a title stands above the real one."""
     return (f"{where}, the first with values, was taken as the header; if the column names are in a later row, "
-            f"delete the rows above them")
+            f"read them from it with {Option.NAMES_ROW} (its number), or delete the rows above them")
 
 
 def _read_labelled(path: Path) -> LoadedData:
@@ -696,7 +696,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         start = _names_row_start(names_row, lines_in_file, first[0] - 1, str(path), "line") + 1
         first = next(((line, fields) for line, fields in _records(text, delimiter) if line >= start), None)
         if first is None or first[0] != start:
-            raise DataError(f"{path}: line {start}, named by --names-row, is empty")
+            raise DataError(f"{path}: line {start}, named by {Option.NAMES_ROW}, is empty")
         if notes is not None:
             notes.append(_names_row_note(str(path), start, "line"))
     header_line, header = first
@@ -765,12 +765,12 @@ def _names_row_start(names_row, rows: int, first: int, where: str, word: str) ->
     """The 0-based position of the row ``--names-row`` names (``rows``: how many the file has; ``first``: the
     first that is not empty), or an error when it cannot apply."""
     if isinstance(names_row, bool) or not isinstance(names_row, (int, np.integer)) or names_row < 1:
-        raise DataError(f"the row of column names (--names-row) must be a {word} number (1 or more), not "
+        raise DataError(f"the row of column names ({Option.NAMES_ROW}) must be a {word} number (1 or more), not "
                         f"{printable(repr(names_row))[:40]}")
     if names_row > rows:
-        raise DataError(f"{where} has {rows} {word}s, so {word} {names_row} (--names-row) cannot hold the column names")
+        raise DataError(f"{where} has {rows} {word}s, so {word} {names_row} ({Option.NAMES_ROW}) cannot hold the column names")
     if names_row - 1 < first:
-        raise DataError(f"{where}: {word} {names_row} (--names-row) is empty; the first {word} with values is "
+        raise DataError(f"{where}: {word} {names_row} ({Option.NAMES_ROW}) is empty; the first {word} with values is "
                         f"{first + 1}")
     return int(names_row) - 1
 
@@ -859,7 +859,7 @@ def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, tex
                 above = f"the column names of row {header_row}" if header_row is not None else "the column names"
                 raise DataError(f"{where}: row {numbers[k]} holds the model's variable names ({shown}) under "
                                 f"{above}, as survey platforms export question texts above their codes; read the "
-                                f"column names from that row with --names-row {numbers[k]} (the rows above it are then "
+                                f"column names from that row with {Option.NAMES_ROW.given(numbers[k])} (the rows above it are then "
                                 f"not read)")
     example = printable(str(frame.iloc[0, position]).strip())[:60]
     rows = f"row {numbers[0]}" if lead == 1 else f"rows {numbers[0]}-{numbers[-1]}"

@@ -122,7 +122,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
                               f"frame; leave the sheet out")
         if names_row is not None:
-            raise OptionError(f"a row of column names ({printable(repr(names_row))[:20]}) is read from a file, and the "
+            raise OptionError(f"a row of column names ({Option.NAMES_ROW}) is read from a file, and the "
                               f"data are a data frame, whose columns have their names; leave it out")
         frame = blank_text_as_missing(data)  # '' and '  ' are no answer, as an empty cell of a file is
         frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
@@ -1196,7 +1196,11 @@ def make_options(options: dict, own: tuple[str, ...] = ()) -> FitOptions:
     unknown = next((k for k in options if k not in known), None)
     if unknown is not None:
         near = close_names(str(unknown), [*own, *known])
+        flags = {o.flag.lstrip("-").replace("-", "_"): o for o in Option}  # a command-line flag written as a keyword
+        named = flags.get(unknown)
         hint = (KEYWORDS_BY_OTHER_NAMES.get(unknown)
+                or (f"the command line's {named.flag} is {named.keyword}=... in Python" if named is not None
+                    and named.keyword != unknown else None)
                 or (f"did you mean {near[0]}=...?" if near else f"the fit options are {', '.join(known)}"))
         raise OptionError(f"unknown keyword '{printable(str(unknown))}': {hint}")
     return FitOptions(**options)

@@ -17,6 +17,7 @@ import math
 
 from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
+from cfa_tool.assessment.fit_indices import GUIDE_VALUES
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors
 from cfa_tool.assessment.reliability import BifactorPart, Keying
@@ -519,11 +520,11 @@ def _fit_sentence(result) -> str:
         rl, rh = r.rmsea_robust_ci90
         pieces = ", ".join(f"{name} {value:.3f}" for name, value in r.pieces)
         return (f"The {_test_phrase(r.test)} gave {CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
-                f"({pieces}); robust CFI = {index_text(r.cfi_robust)}, robust TLI = "
-                f"{index_text(r.tli_robust)}, robust RMSEA = {index_text(r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], "
-                f"SRMR = {unit(f.srmr)}.")
-    return (f"The model fit was {CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {index_text(f.cfi)}, "
-            f"TLI = {index_text(f.tli)}, RMSEA = {index_text(f.rmsea)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}.")
+                f"({pieces}); robust CFI = {index_text(r.cfi_robust, beside=GUIDE_VALUES['cfi'])}, robust TLI = "
+                f"{index_text(r.tli_robust, beside=GUIDE_VALUES['tli'])}, robust RMSEA = {index_text(r.rmsea_robust, beside=GUIDE_VALUES['rmsea'])}, 90% CI [{unit(rl)}, {unit(rh)}], "
+                f"SRMR = {unit(f.srmr, beside=GUIDE_VALUES['srmr'])}.")
+    return (f"The model fit was {CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {index_text(f.cfi, beside=GUIDE_VALUES['cfi'])}, "
+            f"TLI = {index_text(f.tli, beside=GUIDE_VALUES['tli'])}, RMSEA = {index_text(f.rmsea, beside=GUIDE_VALUES['rmsea'])}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr, beside=GUIDE_VALUES['srmr'])}.")
 
 
 def _method_items(result, factor: str) -> list[str]:
@@ -819,11 +820,11 @@ def _fit_figures(result) -> str:
         return "was just-identified (0 df), so its fit could not be tested"
     if r is not None:
         low, high = r.rmsea_robust_ci90
-        return (f"{CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)}, robust CFI = {index_text(r.cfi_robust)}, "
-                f"robust RMSEA = {index_text(r.rmsea_robust)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}")
+        return (f"{CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)}, robust CFI = {index_text(r.cfi_robust, beside=GUIDE_VALUES['cfi'])}, "
+                f"robust RMSEA = {index_text(r.rmsea_robust, beside=GUIDE_VALUES['rmsea'])}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr, beside=GUIDE_VALUES['srmr'])}")
     low, high = f.rmsea_ci90
-    return (f"{CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {index_text(f.cfi)}, RMSEA = {index_text(f.rmsea)}, "
-            f"90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr)}")
+    return (f"{CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {index_text(f.cfi, beside=GUIDE_VALUES['cfi'])}, RMSEA = {index_text(f.rmsea, beside=GUIDE_VALUES['rmsea'])}, "
+            f"90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr, beside=GUIDE_VALUES['srmr'])}")
 
 
 def _comparison_rows(comparison) -> str:
@@ -958,9 +959,13 @@ def _step_figures(step) -> str:
         return "no difference statistic"
     text = f"{CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}"
     if not step.result.method.ordinal:  # the adjusted indices of ordinal fits are not compared between models
-        text += f", \u0394CFI = {signed(t.delta_cfi)}, \u0394RMSEA = {signed(t.delta_rmsea)}"
+        from cfa_tool.workflows.invariance import CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER
+
+        text += (f", \u0394CFI = {signed(t.delta_cfi, beside=CFI_GUIDE)}, "
+                 f"\u0394RMSEA = {signed(t.delta_rmsea, beside=RMSEA_GUIDE)}")
         if step.delta_srmr is not None:
-            text += f", \u0394SRMR = {signed(step.delta_srmr)}"
+            text += (f", \u0394SRMR = "
+                     f"{signed(step.delta_srmr, beside=SRMR_GUIDE.get(step.level, SRMR_GUIDE_LATER))}")
     return text
 
 

@@ -657,7 +657,8 @@ def reliability_table(result, group: int = 0) -> ReportTable | None:
              if ordinal else "") + keying_sentence(rows) +
             ("Omega hierarchical" if any(r.bifactor is not None for r in rows) else "Omega") + ": share of the " + ("variance of the keyed sum of the latent responses" if ordinal else
                                       "keyed item sum's variance") + " due "
-            "to the factor (for a higher-order factor: omega hierarchical); omega total: due to all factors; alpha "
+            + ("to the factor; " if any(r.bifactor is not None for r in rows) else
+               "to the factor (for a higher-order factor: omega hierarchical); ") + "omega total: due to all factors; alpha "
             "from the " + ("polychoric correlations" if ordinal else "sample covariances") + " of the keyed items; "
             + ("composite" if ordinal else "composite reliability") + " from the standardized loadings.")
     if any(r.bifactor is not None for r in rows):

@@ -1014,8 +1014,8 @@ def centred_in_each_group(estimates) -> list[str]:
         return ["The scores of different groups cannot be compared: the model fixes every factor's mean at zero in "
                 "every group (its intercepts are not held equal across groups), so each group's scores are centred at "
                 "0 in that group's own units, and the groups' average scores are 0 whatever their factor means.  "
-                "Compare groups only with scores of a model that holds loadings and intercepts equal ('invariance "
-                "scalar'), once the invariance command supports that level."]
+                "Compare groups only with the scores of a model that holds loadings and intercepts equal ('invariance "
+                "scalar' in the model file), and only when the invariance command finds that level holds."]
     names, one = ", ".join(printable(f) for f in centred), len(centred) == 1
     return [f"The scores of different groups cannot be compared on {names}: the model fixes {'its' if one else 'their'} "
             f"mean at zero in every group, so each group's scores of {'it' if one else 'them'} are centred at 0 in "

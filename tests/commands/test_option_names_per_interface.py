@@ -8,6 +8,7 @@ from __future__ import annotations
 import inspect
 import shutil
 
+import pandas as pd
 import pytest
 
 import cfa_tool
@@ -175,3 +176,17 @@ def test_an_unknown_keyword_is_named_with_the_nearest_keyword_of_the_function_ca
     # own arguments by frame inspection ('options', 'spec'), never the public function's
     said = _python(lambda: call(files))
     assert f"did you mean {near}=...?" in said, said
+
+
+@pytest.mark.parametrize("written, keyword", [("group_column", "group"), ("incomplete_rows", "missing"),
+                                              ("id", "id_column"), ("standard_errors_from", "information")])
+def test_a_command_line_flag_written_as_a_keyword_is_named_with_its_python_keyword(written, keyword, files):
+    # 'group_column' was answered with "did you mean id_column=...?": the nearest spelling, not the same option
+    message = _python(lambda: cfa_tool.fit(files / "rider.cfa", files / "rider.csv", **{written: "district"}))
+    assert f"is {keyword}=... in Python" in message
+
+
+def test_a_row_of_column_names_given_with_a_data_frame_is_named_as_python_writes_it(files):
+    frame = pd.read_csv(files / "rider.csv")
+    message = _python(lambda: cfa_tool.fit(files / "rider.cfa", frame, names_row=2))
+    assert "a row of column names (names_row=...)" in message
