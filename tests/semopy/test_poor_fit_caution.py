@@ -65,3 +65,27 @@ def test_the_robust_figures_decide_when_the_report_says_to_read_them():
     read = robust.fit_to_read
     poor = [p for p in robust.problems if p.kind is ProblemKind.POOR_FIT]
     assert poor and f"robust RMSEA {f'{read.rmsea:.3f}'[1:]}" in poor[0].explanation
+
+
+def test_compare_and_replicate_caution_first_about_a_model_that_fits_poorly(tmp_path, capsys):
+    """The poor-fit caution of each model, first in compare's and replicate's reports (both had it only in the
+    JSON of each model); an invariance test judges its configural model by its own guides instead (one caution)."""
+    data = holzinger_swineford()
+    (tmp_path / "one.cfa").write_text(ONE_FACTOR)
+    (tmp_path / "three.cfa").write_text(THREE_FACTORS)
+    data.to_csv(tmp_path / "hs.csv", index=False)
+    data.iloc[::2].to_csv(tmp_path / "a.csv", index=False)
+    data.iloc[1::2].to_csv(tmp_path / "b.csv", index=False)
+    assert main(["compare", str(tmp_path / "one.cfa"), str(tmp_path / "three.cfa"), "--data",
+                 str(tmp_path / "hs.csv")]) == 0
+    out = capsys.readouterr().out
+    assert out.index("fits these data poorly") < out.index("Model comparison")
+    assert out.count("fits these data poorly") == 1  # the one-factor model only
+    assert main(["replicate", str(tmp_path / "one.cfa"), "--calibration", str(tmp_path / "a.csv"), "--validation",
+                 str(tmp_path / "b.csv")]) == 0
+    out = capsys.readouterr().out
+    assert 0 < out.index("fits these data poorly") < out.index("Replication")
+    assert main(["invariance", str(tmp_path / "one.cfa"), "--data", str(tmp_path / "hs.csv"), "--group-column",
+                 "school"]) == 0
+    out = capsys.readouterr().out
+    assert "configural model does not fit by the guide values" in out and "fits these data poorly" not in out
