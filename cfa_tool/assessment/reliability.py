@@ -316,6 +316,8 @@ def _bifactor(direct: np.ndarray, corr_lat: np.ndarray, higher: np.ndarray, obse
     """(general factors, the factors sharing items with each factor of a bifactor structure) by the one rule of
     assessment/method_factors.bifactor_parts, from the loadings' pattern and the factors' zero correlations."""
     m = len(latent)
+    if not (np.count_nonzero(direct[:, ~np.asarray(higher, dtype=bool)], axis=1) > 1).any():
+        return set(), {}  # no item on two factors: no bifactor structure (the usual case, at once)
     loadings = {latent[j]: {observed[i] for i in np.nonzero(direct[:, j])[0]} for j in range(m) if not higher[j]}
     zero = np.abs(np.nan_to_num(corr_lat, nan=1.0)) <= 1e-10
     uncorrelated = {frozenset((latent[a], latent[b])) for a in range(m) for b in range(a + 1, m) if zero[a, b]}

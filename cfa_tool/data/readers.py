@@ -789,9 +789,12 @@ def drop_blank_rows(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, tupl
     a footer such as 'Total responses: 1204') is kept; the analysis names it if it answers no model variable."""
     if frame.shape[1] == 0 or len(frame) == 0:
         return frame, ()
-    blank = frame.isna().all(axis=1).to_numpy()
-    if not blank.any():
-        return frame, ()
+    blank = None
+    for _, column in frame.items():  # column by column: a column without gaps (an id) ends the search at once
+        empty = column.isna().to_numpy()
+        blank = empty if blank is None else blank & empty
+        if not blank.any():
+            return frame, ()
     if blank.all():
         return frame, ()  # the readers' own message: a header but no rows of data
     numbers = row_numbers(frame)[blank]

@@ -135,7 +135,7 @@ def test_a_row_of_the_models_names_under_question_texts_is_said_and_can_be_read(
         cfa_tool.check(rider_model, str(path))
     message = str(caught.value)
     assert "row 2 holds the model's variable names ('on_time', 'short_wait', 'accurate_info', ...)" in message
-    assert "--names-row 2" in message and "delete" not in message
+    assert "names_row=2" in message and "delete" not in message  # named as a Python call writes it
     plain, _, _ = _export(rider_demo, tmp_path / "plain.xlsx")
     read_so = cfa_tool.check(rider_model, str(path), names_row=2)
     reference = cfa_tool.check(rider_model, str(plain))
