@@ -633,7 +633,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     # values that look like no answers among the rows read (both halves of a split): first in every view
     # and items answered alike by all rows but a few, as fit names them (pipeline.inputs.few_answers_problems)
     screened = api.screened(frame, tuple(chosen), source, loaded.non_answers, loaded.cautions)
-    data_problems = api.odd_value_problems(screened) + api.few_answers_problems(_ItemsRead(tuple(chosen)), screened)
+    data_problems = api.odd_value_problems(screened) + api.few_answers_problems(tuple(chosen), {}, None, screened)
     halves = None
     if split is not None:
         split = options.seed(split)
@@ -667,16 +667,6 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
         split_result = _confirm(exploration, halves, split, source, statements)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
                          sorted_items(exploration), data_problems, statements, coding_record(spec))
-
-
-@dataclass(frozen=True)
-class _ItemsRead:
-    """The items explored, as pipeline.inputs.few_answers_problems reads a fit's (its nearly constant items; the
-    coverage of items with gaps is in the exploration's own notes)."""
-
-    observed: tuple[str, ...]
-    missing_data: None = None
-    n_obs: int = 0
 
 
 def _ordinal_items(ordinal, items: tuple[str, ...]) -> tuple[str, ...]:
