@@ -203,7 +203,9 @@ def render_report(report, console: Console) -> None:
             console.print()
     for listing in report.listings:
         console.print(Text(listing.title, style="bold"))
-        console.print(Text(printable(listing.text, keep_newlines=True)))
+        # a listing is a file's text (the draft model): its lines printed whole, as written, so that it can be copied
+        # as it stands (a wrapped comment line would continue without its '#')
+        console.print(Text(printable(listing.text, keep_newlines=True)), no_wrap=True, overflow="ignore", crop=False)
     for line in report.notes:
         console.print(line)
     for line in report.cautions:
