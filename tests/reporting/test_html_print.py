@@ -49,25 +49,34 @@ def test_the_print_styles_wrap_break_and_turn_matrices_landscape(sixty):
         assert f'<div class="wide"><table id="{key}" class="matrix">' in page
 
 
-@pytest.mark.skipif(CHROMIUM is None or shutil.which("pdftotext") is None or shutil.which("pdfinfo") is None,
-                    reason="headless Chromium and poppler's pdftotext are not installed (.ci/run installs them)")
-def test_a_printed_report_keeps_the_long_lines_and_the_whole_matrices(tmp_path, sixty):
-    html, pdf = tmp_path / "sixty.html", tmp_path / "sixty.pdf"
-    html.write_text(report_html(sixty), encoding="utf-8")
+PRINTING = pytest.mark.skipif(CHROMIUM is None or shutil.which("pdftotext") is None or shutil.which("pdfinfo") is None,
+                              reason="headless Chromium and poppler's pdftotext are not installed (.ci/run installs them)")
+
+
+def _printed(tmp_path, report, title: str) -> tuple[str, int, bool]:
+    """The report printed to PDF by headless Chromium, read back by poppler: (its text, the index of the first page
+    holding ``title``, whether that page is landscape)."""
+    html, pdf = tmp_path / "report.html", tmp_path / "report.pdf"
+    html.write_text(report_html(report), encoding="utf-8")
     done = _chromium("--no-pdf-header-footer", f"--print-to-pdf={pdf}", html.resolve().as_uri())
     assert pdf.exists(), done.stderr[-2000:]
     text = subprocess.run(["pdftotext", "-layout", str(pdf), "-"], capture_output=True, text=True, check=True).stdout
-    assert "end_of_the_long_line" in text  # the model file's long line wraps instead of running off the paper
-    pages = text.split("\f")
-    wide = [k for k, p in enumerate(pages) if "Residual correlations (sample minus model)" in p]
-    assert wide
-    header = " ".join(str(k) for k in range(1, MAX_MATRIX))
-    assert header in " ".join(pages[wide[0]].split())  # every column of the matrix is on the paper
-    assert re.search(rf"{MAX_MATRIX} y{MAX_MATRIX}\s", pages[wide[0]])  # and its last row
-    info = subprocess.run(["pdfinfo", "-f", str(wide[0] + 1), "-l", str(wide[0] + 1), str(pdf)], capture_output=True,
+    page = next(k for k, p in enumerate(text.split("\f")) if title in p)
+    info = subprocess.run(["pdfinfo", "-f", str(page + 1), "-l", str(page + 1), str(pdf)], capture_output=True,
                           text=True, check=True).stdout
-    width, height = map(float, re.search(rf"Page\s+{wide[0] + 1} size:\s+([\d.]+) x ([\d.]+)", info).groups())
-    assert width > height  # landscape
+    width, height = map(float, re.search(rf"Page\s+{page + 1} size:\s+([\d.]+) x ([\d.]+)", info).groups())
+    return text, page, width > height
+
+
+@PRINTING
+def test_a_printed_report_keeps_the_long_lines_and_the_whole_matrices(tmp_path, sixty):
+    text, page, landscape = _printed(tmp_path, sixty, "Residual correlations (sample minus model)")
+    assert "end_of_the_long_line" in text  # the model file's long line wraps instead of running off the paper
+    found = text.split("\f")[page]
+    header = " ".join(str(k) for k in range(1, MAX_MATRIX))
+    assert header in " ".join(found.split())  # every column of the matrix is on the paper
+    assert re.search(rf"{MAX_MATRIX} y{MAX_MATRIX}\s", found)  # and its last row
+    assert landscape
 
 
 @pytest.fixture(scope="module")
@@ -113,20 +122,9 @@ def test_a_small_path_diagram_stays_on_the_portrait_page():
     assert '<figure class="diagram landscape">' not in report_html(report)
 
 
-@pytest.mark.skipif(CHROMIUM is None or shutil.which("pdftotext") is None or shutil.which("pdfinfo") is None,
-                    reason="headless Chromium and poppler's pdftotext are not installed (.ci/run installs them)")
+@PRINTING
 def test_a_printed_wide_path_diagram_is_whole_on_a_landscape_page(tmp_path, fifteen):
-    html, pdf = tmp_path / "fifteen.html", tmp_path / "fifteen.pdf"
-    html.write_text(report_html(fifteen), encoding="utf-8")
-    done = _chromium("--no-pdf-header-footer", f"--print-to-pdf={pdf}", html.resolve().as_uri())
-    assert pdf.exists(), done.stderr[-2000:]
-    text = subprocess.run(["pdftotext", "-layout", str(pdf), "-"], capture_output=True, text=True, check=True).stdout
-    pages = text.split("\f")
-    found = [k for k, p in enumerate(pages) if "Path diagram of the fitted model" in p]
-    assert found
-    words = pages[found[0]].split()
-    assert {"vigour", "dedication", "absorption", "WE01", "WE15"} <= set(words)  # the rightmost factor and item too
-    info = subprocess.run(["pdfinfo", "-f", str(found[0] + 1), "-l", str(found[0] + 1), str(pdf)], capture_output=True,
-                          text=True, check=True).stdout
-    width, height = map(float, re.search(rf"Page\s+{found[0] + 1} size:\s+([\d.]+) x ([\d.]+)", info).groups())
-    assert width > height  # landscape
+    text, page, landscape = _printed(tmp_path, fifteen, "Path diagram of the fitted model")
+    words = set(text.split("\f")[page].split())
+    assert {"vigour", "dedication", "absorption", "WE01", "WE15"} <= words  # the rightmost factor and item too
+    assert landscape
