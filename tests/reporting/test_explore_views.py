@@ -8,6 +8,8 @@ axis got round values."""
 from __future__ import annotations
 
 import json
+import re
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
@@ -87,15 +89,30 @@ def test_a_problem_column_only_where_a_row_has_a_problem(shown):
     assert name != "split" or not at_bound
 
 
-def test_the_draft_model_prints_whole_in_a_narrow_terminal(shown):
+def test_the_draft_model_printed_in_a_narrow_terminal_is_the_same_model(shown):
     # new-user trial: the draft's '#' comment lines wrapped in an 80-column terminal, continuing without '#', so the
     # printed draft could not be copied as a model
+    from cfa_tool.language.parser import parse_model
+
     _, result, report = shown
     printed = report_text(report, width=80).splitlines()
-    lines = [line for line in result.draft_text.splitlines() if line.strip()]
-    assert max(len(line) for line in lines) > 80  # the case needs lines wider than the terminal
-    start = printed.index("Draft model")
-    assert [line.rstrip() for line in printed[start + 1:] if line.strip()][:len(lines)] == [x.rstrip() for x in lines]
+    assert max(len(line) for line in result.draft_text.splitlines()) > 80  # the case needs lines wider than that
+    start = printed.index("Draft model") + 1
+    end = next(k for k in range(start, len(printed)) if printed[k].startswith(report.notes[0][:30]))  # the next part
+    listing = printed[start:end]
+    assert max(len(line) for line in printed) <= 80
+    copied = "\n".join(listing)
+    model_lines = [x for x in copied.splitlines() if x.strip() and not x.lstrip().startswith("#")]
+    def model(text: str) -> str:  # the model read, without its text and the places of its words
+        return re.sub(r"Location\([^)]*\)", "", repr(replace(parse_model(text), text="")))
+
+    assert model(copied) == model(result.draft_text)  # copied from the terminal: the same model
+    assert model_lines == [x for x in result.draft_text.splitlines() if x.strip() and not x.lstrip().startswith("#")]
+
+    def comments(text: str) -> list[str]:
+        return " ".join(x.lstrip()[1:] for x in text.splitlines() if x.lstrip().startswith("#")).split()
+
+    assert comments(copied) == comments(result.draft_text)  # the comments' words, every one behind a '#'
 
 
 def test_the_loadings_note_says_how_signs_are_set(shown):
