@@ -28,9 +28,12 @@ transformation U of the varimax loadings V towards the target V o |V|^(k-1), its
 scaled so that the factor variances are 1: L = V U, Phi = (U'U)^-1; k = 4 by default
 (common practice).  Promax is not a gradient-projection criterion.
 
-Every solution is reported in one orientation: the sign of each factor makes its pattern
-loadings sum to a positive number, and the factors are ordered by their sums of squared
-pattern loadings, largest first.  The unrotated solution keeps the order of its eigenvalues;
+Every solution is reported in one orientation: the sign of each factor makes most of its salient
+pattern loadings (at least the draft's threshold, .30, in absolute value; common practice) positive;
+where as many are negative as positive, their sum positive, and where none is salient, the sum of
+all its loadings.  A factor of three positively worded items and two reverse-worded ones so points
+the way of the three, which the sum of all loadings (small cross-loadings included) need not.  The
+factors are ordered by their sums of squared pattern loadings, largest first.  The unrotated solution keeps the order of its eigenvalues;
 target rotation keeps the target's order, and the sign of columns where the target specifies
 a loading other than 0.
 """
@@ -44,6 +47,7 @@ import numpy as np
 from cfa_tool.errors import OptionError
 from cfa_tool.exploration import criteria
 from cfa_tool.exploration.choices import RotationMethod
+from cfa_tool.exploration.draft import DEFAULT_THRESHOLD
 
 _ORTHOGONAL_ONLY = (RotationMethod.VARIMAX,)
 _OBLIQUE_ONLY = (RotationMethod.QUARTIMIN, RotationMethod.OBLIMIN, RotationMethod.PROMAX)
@@ -285,11 +289,29 @@ def stationarity(L: np.ndarray, Phi: np.ndarray, criterion: criteria.Criterion, 
     return (M - M.T)[np.tril_indices(m, -1)]
 
 
+#: the orientation rule in a report's words (the note under the loadings)
+ORIENTATION_RULE = (f"Signs: each factor is turned so that most of its loadings of {DEFAULT_THRESHOLD:.2f} or more (in "
+                    f"absolute value) are positive (with as many negative, so that their sum is); negative loadings then "
+                    f"mark the items worded against the factor's direction.").replace("0.", ".", 1)
+
+
+def orientation_signs(pattern: np.ndarray, salient: float = DEFAULT_THRESHOLD) -> np.ndarray:
+    """The sign (+1 or -1) of each factor that makes most of its salient loadings (``salient`` or more in absolute
+    value) positive; ties by the sum of the salient loadings, then by the sum of all (the module's docstring)."""
+    big = np.abs(pattern) >= salient
+    keys = (np.sum(np.sign(pattern) * big, axis=0), np.sum(pattern * big, axis=0), pattern.sum(axis=0))
+    signs = np.ones(pattern.shape[1])
+    for j in range(pattern.shape[1]):
+        deciding = next((float(k[j]) for k in keys if k[j] != 0), 0.0)
+        signs[j] = -1.0 if deciding < 0 else 1.0
+    return signs
+
+
 def align(pattern: np.ndarray, Phi: np.ndarray, sort: bool = True,
           fixed_sign: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """The reported orientation (see the module's docstring): (pattern, Phi, order, signs).
     Columns marked in ``fixed_sign`` keep their sign."""
-    signs = np.where(pattern.sum(axis=0) < 0, -1.0, 1.0)
+    signs = orientation_signs(pattern)
     if fixed_sign is not None:
         signs = np.where(fixed_sign, 1.0, signs)
     P = pattern * signs

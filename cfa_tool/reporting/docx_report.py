@@ -125,6 +125,8 @@ LINE = 12.0 * 1.15 * 1.15
 PARAGRAPH_GAP = 10.0
 PICTURE_GAP = 6.0  # points after the picture's paragraph
 SLACK = 14.0  # points kept free on the page: the estimates above are not the word processor's own
+FIGURES = "Figures"  # the heading of the figures, on the page of the first
+HEADING_ROOM = 13.0 * 1.15 + 10.0 + 6.0  # points: a level-2 heading's line (13 pt type) and the space before it, with air
 
 
 def _figure_room(note: str, across: float) -> float:
@@ -349,14 +351,19 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
         document.add_heading("Method and results", level=2)
         document.add_paragraph(typeset(report.paragraph))
     if report.figures:
-        document.add_heading("Figures", level=2)
         if png_converter() is None:
+            document.add_heading(FIGURES, level=2)
             document.add_paragraph(NO_PICTURE)
         else:
             for number, figure in enumerate(report.figures, start=1):
                 wider, pieces = _figure_pieces(document, figure.svg, figure.note)
-                area = _figure_areas(document, figure.note)[wider]  # less the caption and the note
+                across, down = _figure_areas(document, figure.note)[wider]  # less the caption and the note
                 _set_orientation(document, wider)  # a wide drawing (many items) on a landscape page: larger labels
+                if number == 1:  # the heading on the first figure's page (a landscape page starts after the heading
+                    # had been left alone at the foot of the page before it), and room for it there
+                    document.add_heading(FIGURES, level=2).paragraph_format.keep_with_next = True
+                    down -= HEADING_ROOM / 72.0
+                area = (across, down)
                 for k, piece in enumerate(pieces):
                     _caption(document, f"Figure {number}" + (" (continued)" if k else ""), figure.title)
                     png = svg_to_png(piece, dpi)

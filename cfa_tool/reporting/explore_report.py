@@ -6,6 +6,7 @@ from __future__ import annotations
 import numpy as np
 
 from cfa_tool.exploration.choices import FitStatistic
+from cfa_tool.exploration.rotation import ORIENTATION_RULE
 from cfa_tool.language.names import names_text
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
@@ -81,16 +82,18 @@ SCALED_NOTE = ("Chi-square and RMSEA of polychoric correlations: the statistic i
 def fits_table(result) -> ReportTable:
     rows = []
     scaled = _scaled(result)
+    improper = any(step.improper for step in result.fits)  # a Problem column only where a solution has one
     for step in result.fits:
         f = step.solution.fit
         low, high = f.rmsea_ci90
         test = "no test" if f.df == 0 else f"{f.chi_square:.3f} on {f.df} df, p {T.p_phrase(f.p_value)}"
         rows.append([str(step.factors), test, "" if f.df == 0 else f"{unit(f.rmsea)} [{unit(low)}, {unit(high)}]",
-                     *([] if scaled else [num(f.bic, 1)]), unit(f.srmr), "Heywood case" if step.improper else ""])
+                     *([] if scaled else [num(f.bic, 1)]), unit(f.srmr)] + (["Heywood case" if step.improper else ""]
+                                                                         if improper else []))
     return _table("solution_fits", "Fit of maximum-likelihood solutions with 1 to K + 2 factors",
                   [("Factors", "r"), ("Scaled chi-square" if scaled else "Chi-square", "r"),
                    ("RMSEA [90% interval]", "r"), *([] if scaled else [("BIC", "r")]), ("SRMR", "r"),
-                   ("Problem", "l")], rows,
+                   *([("Problem", "l")] if improper else [])], rows,
                   f"{SCALED_NOTE} {GUIDE_NOTE}" if scaled else GUIDE_NOTE,
                   flagged=tuple(i for i, s in enumerate(result.fits) if s.improper))
 
@@ -110,6 +113,7 @@ def loading_table(result, structure: bool = False) -> ReportTable:
     errors = ex.errors.pattern[list(order)] if (not structure and ex.errors is not None
                                                 and ex.errors.unavailable is None) else None
     rows = []
+    marked = not structure and any(result.items[k] in ex.solution.at_bound for k in order)  # a Problem column if any
     for i, k in enumerate(order):
         if errors is None:
             cells = [result.items[k]] + [unit(v, 2) for v in shown[i]]
@@ -117,16 +121,17 @@ def loading_table(result, structure: bool = False) -> ReportTable:
             cells = [result.items[k]] + [c for v, e in zip(shown[i], errors[i])
                                          for c in (unit(v, 2), num(e, 3) if np.isfinite(e) else "")]
         if not structure:
-            cells += [unit(ex.communalities[k], 2), "at bound" if result.items[k] in ex.solution.at_bound else ""]
+            cells += [unit(ex.communalities[k], 2)] + (["at bound" if result.items[k] in ex.solution.at_bound else ""]
+                                                       if marked else [])
         rows.append(cells)
     cols = [("Item", "l")] + ([(n, "r") for n in names] if errors is None else
                               [c for n in names for c in ((n, "r"), ("SE", "r"))])
     if not structure:
-        cols += [("Communality", "r"), ("Problem", "l")]
+        cols += [("Communality", "r")] + ([("Problem", "l")] if marked else [])
     title = ("Structure loadings (correlations of items with factors)" if structure else
              "Pattern loadings" + (" (oblique rotation)" if ex.rotated.oblique else ""))
     note = (f"Items sorted by the factor of their largest loading, then by its size. Loadings below {unit(threshold, 2)} "
-            f"in absolute value are shown faintly.")
+            f"in absolute value are shown faintly. {ORIENTATION_RULE}")
     why_not = {"unrotated-several-factors": "the unrotated loadings of several factors are not a rotation's optimum",
                "uniqueness-at-bound": "a uniqueness is at its bound",
                "singular-information": "the information matrix is singular"}

@@ -5,6 +5,8 @@ from __future__ import annotations
 
 from cfa_tool.version import __version__
 from cfa_tool.reporting import tables as T
+from cfa_tool.reporting.diagram import MIN_FIGURE_TEXT
+from cfa_tool.reporting.picture import smallest_text, svg_size
 from cfa_tool.reporting.document import WARNINGS
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.tables import ReportTable
@@ -19,7 +21,8 @@ td{padding:.2em .7em} tbody tr:last-child td{border-bottom:2px solid #333}
 td.r,th.r{text-align:right;font-variant-numeric:tabular-nums} td.l,th.l{text-align:left}
 .note{font-size:.88em;color:#444;max-width:60em} .caution{background:#fff7e6;border-left:4px solid #e0a030;padding:.6em 1em}
 .summary{background:#f4f7fb;border-left:4px solid #1f3b73;padding:.8em 1em} pre{background:#f6f6f6;padding:.8em;overflow-x:auto}
-.diagram{overflow-x:auto;border:1px solid #ddd;padding:.5em} td.heat{text-align:right;min-width:3em}
+.diagram{overflow-x:auto;border:1px solid #ddd;padding:.5em;margin:1em 0} td.heat{text-align:right;min-width:3em}
+.diagram img{display:block;max-width:100%;height:auto}
 ul.warnings li{margin:.3em 0}
 .problems{background:#fdecea;border:2px solid #b3261e;padding:.6em 1em;margin:1em 0}
 .problems.caution-only{background:#fff7e6;border-color:#e0a030} .problems h2{border:none;margin:.2em 0;color:#b3261e}
@@ -34,12 +37,32 @@ body>h2~h2{break-before:page} h1,h2,caption{break-after:avoid}
 tr,li,figure,.problems,.caution,.summary{break-inside:avoid} thead{display:table-header-group}
 p,li,pre,.summary{white-space:pre-wrap;overflow-wrap:anywhere} pre{overflow:visible}
 table{font-size:8.5pt} .diagram{overflow:visible;border:none;padding:0} .diagram img{max-width:100%;height:auto}
-div.wide{overflow:visible;page:wide} table.matrix{font-size:6pt} table.matrix td,table.matrix th{padding:0 .12em}
+div.wide{overflow:visible;page:wide} figure.landscape{page:wide} table.matrix{font-size:6pt} table.matrix td,table.matrix th{padding:0 .12em}
 table.matrix td:first-child{position:static} td.heat{min-width:0}
 *{-webkit-print-color-adjust:exact;print-color-adjust:exact}
 }
+@page{margin:10mm}
 @page wide{size:A4 landscape;margin:10mm}
 """
+# the width of the text area of a printed page, in inches, with the margins above: portrait, the narrower of A4
+# (210 mm) and US letter (8.5 in); landscape, A4 (297 mm)
+PAGE_MARGIN_MM = 10.0
+PORTRAIT_INCHES = min(210.0 / 25.4, 8.5) - 2 * PAGE_MARGIN_MM / 25.4  # 7.48
+LANDSCAPE_INCHES = (297.0 - 2 * PAGE_MARGIN_MM) / 25.4  # 10.91
+CSS_PIXEL = 1 / 96  # inches (CSS 2.1): a drawing no wider than the page prints at one user unit to a pixel
+
+
+def printed_inches(svg: str, page: float) -> float:
+    """How wide the drawing ``svg`` prints on a page ``page`` inches wide: at its own size (a user unit to a CSS
+    pixel), or scaled down to the page's width (the picture's max-width)."""
+    return min(page, svg_size(svg)[0] * CSS_PIXEL)
+
+
+def landscape_figure(svg: str) -> bool:
+    """Whether the drawing ``svg`` prints on a landscape page: across a portrait page its smallest text would be
+    below the legibility rule's MIN_FIGURE_TEXT points (reporting.diagram), and a landscape page prints it larger."""
+    size = smallest_text(svg, printed_inches(svg, PORTRAIT_INCHES))
+    return size is not None and size < MIN_FIGURE_TEXT
 
 
 def _heat(text: str) -> str:
@@ -87,7 +110,8 @@ def report_html_fragment(report, heading: bool = False) -> str:
         parts += ["<h2>Summary for a paper</h2>", f'<p class="summary" id="methods-paragraph">{esc(report.paragraph)}</p>']
     for figure in report.figures:
         data = base64.b64encode(figure.svg.encode("utf-8")).decode("ascii")
-        parts += [f'<figure class="diagram"><figcaption>{esc(figure.title)}</figcaption>'
+        wide = " landscape" if landscape_figure(figure.svg) else ""  # printed on a landscape page, as wide tables
+        parts += [f'<figure class="diagram{wide}"><figcaption>{esc(figure.title)}</figcaption>'
                   f'<img alt="{esc(figure.title)}" src="data:image/svg+xml;base64,{data}"></figure>']
         if figure.note:
             parts.append(f'<p class="note">{esc(figure.note)}</p>')

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import io
+import textwrap
 
 from rich import box
 from rich.console import Console, Group
@@ -203,11 +204,58 @@ def render_report(report, console: Console) -> None:
             console.print()
     for listing in report.listings:
         console.print(Text(listing.title, style="bold"))
-        console.print(Text(printable(listing.text, keep_newlines=True)))
+        # a listing is a model file's text: broken where the model stays the same, so that it can be copied as it
+        # stands (wrapped by the terminal, a comment went on without its '#')
+        text = "\n".join(listing_lines(printable(listing.text, keep_newlines=True), console.width))
+        console.print(Text(text))  # (a line that cannot break so, a name wider than the terminal, wraps there)
     for line in report.notes:
         console.print(line)
     for line in report.cautions:
         console.print(Text(line, style="italic"))
+
+
+def _outside_quotes(line: str, wanted: str) -> list[int]:
+    """Where the character ``wanted`` stands in ``line`` outside double quotes (names in quotes may hold any)."""
+    found, quoted = [], False
+    for k, c in enumerate(line):
+        quoted = quoted != (c == '"')
+        if c == wanted and not quoted:
+            found.append(k)
+    return found
+
+
+def listing_lines(text: str, width: int) -> list[str]:
+    """A model file's text in lines of at most ``width`` characters that read as the same model: a comment goes on
+    over lines that start with '#'; a statement's list breaks after a comma (the model language lets a list go on
+    in the next line after one), its next lines indented; a line that cannot break so stays whole."""
+    out: list[str] = []
+    for line in text.split("\n"):
+        if len(line) <= width:
+            out.append(line)
+            continue
+        hashes = _outside_quotes(line, "#")
+        code, comment = (line[:hashes[0]], line[hashes[0] + 1:]) if hashes else (line, "")
+        if code.strip():
+            indent = " " * (len(code) - len(code.lstrip()) + 4)
+            current = ""
+            for piece in _pieces(code.rstrip()):
+                if current and len(current) + len(piece) > width:
+                    out.append(current.rstrip())
+                    current = indent + piece.lstrip()
+                else:
+                    current += piece
+            out.append(current.rstrip())
+        if hashes:
+            margin = " " * (len(line) - len(line.lstrip())) if not code.strip() else ""
+            out += textwrap.wrap(comment.strip(), width, initial_indent=margin + "# ", subsequent_indent=margin + "# ",
+                                 break_long_words=False, break_on_hyphens=False) or [margin + "#"]
+    return out
+
+
+def _pieces(code: str) -> list[str]:
+    """A statement cut after each comma outside quotes, the commas kept."""
+    cuts = [k + 1 for k in _outside_quotes(code, ",")]
+    return [code[a:b] for a, b in zip([0] + cuts, cuts + [len(code)]) if code[a:b]]
 
 
 def report_text(report, width: int = 120) -> str:

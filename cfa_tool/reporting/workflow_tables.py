@@ -21,6 +21,7 @@ from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
+CHECK_SOLUTIONS = "Check before interpreting these solutions"  # the cautions of several models' solutions
 CHANGE_GUIDES = ("Changes in CFI and RMSEA are read against common-practice guides (a fall in CFI of more than .010, "
                  "Cheung & Rensvold 2002; a rise in RMSEA of .015 or more, Chen 2007), which are conventions, not tests.")
 CHANGES_DESCRIBED = ("Changes in CFI and RMSEA describe the difference only: the common-practice guides for them "
@@ -77,7 +78,8 @@ def _design_caution_lines(named_results) -> list[str]:
 def _notice(problems: list[str], cautions: list[str] = ()) -> ProblemNotice | None:
     if not problems and not cautions:
         return None
-    return ProblemNotice(SOME_NOT_ADMISSIBLE if problems else T.CAUTION, tuple(problems) + tuple(cautions), bool(problems))
+    return ProblemNotice(SOME_NOT_ADMISSIBLE if problems else CHECK_SOLUTIONS, tuple(problems) + tuple(cautions),
+                         bool(problems))
 
 
 def _fit_notice(result) -> ProblemNotice | None:
@@ -160,23 +162,32 @@ BOUNDARY_CAUTION = ("values on the boundary of what the general model allows, so
                     "Wittenboer 2006)")
 
 
-def boundary_note(tests) -> str:
+def boundary_note(tests, first: bool = True) -> str:
     """The note under a difference-test table whose restricted model sits on the boundary: what lies there, why the
-    printed p-values are not exact, and the mixture's p-value when one parameter lies there."""
+    printed p-values are not exact, and the mixture's p-value when one parameter lies there.  The why, and the
+    mixture's distribution, are said in full under the ``first`` such table of a comparison only; the later tables
+    name what lies on their boundary, their own p-values and where the why is said (new-user trial: five one-row
+    tables repeated the same five lines)."""
     what = "; ".join(tests[0].boundary)
     mixture = [t for t in tests if not missing(t.boundary_p_value)]
+    shown = "p-value" if sum(not t.not_computed for t in tests) == 1 else "p-values"
     if mixture:
         found = ", ".join(f"p {p_phrase(t.boundary_p_value)} for the {t.method}" for t in mixture)
+        approximate = " (for the scaled differences as an approximation)" if len(mixture) > 1 else ""
+        read = f": read {'that' if len(mixture) == 1 else 'those'}, not the {shown} marked *."
+        if not first:
+            return (f"* On the boundary: {what} (see the note under the first table of difference tests). The 50:50 "
+                    f"mixture gives {found}{approximate}{read}")
         reading = (f"With one parameter on the boundary the difference follows the 50:50 mixture of chi-square "
                    f"distributions with {mixture[0].df_difference - 1} and {mixture[0].df_difference} df (Self & Liang "
-                   f"1987; Stram & Lee 1994), which gives {found}"
-                   + (" (for the scaled differences as an approximation)" if len(mixture) > 1 else "")
-                   + f": read {'that' if len(mixture) == 1 else 'those'}, not the "
-                   + ("p-value" if sum(not t.not_computed for t in tests) == 1 else "p-values") + " marked *.")
+                   f"1987; Stram & Lee 1994), which gives {found}{approximate}{read}")
     else:
+        if not first:
+            return (f"* On the boundary: {what} (see the note under the first table of difference tests). No exact "
+                    f"p-value: read the {shown} marked * as rough.")
         reading = ("Its distribution depends on the model here (several parameters on the boundary, or loadings that the "
-                   "restricted model leaves undefined), so no exact p-value is given: read the p-values marked * as "
-                   "rough, and weigh the models also by their fit indices, AIC and BIC.")
+                   "restricted model leaves undefined), so no exact p-value is given: read the "
+                   f"{shown} marked * as rough, and weigh the models also by their fit indices, AIC and BIC.")
     return f"* On the boundary: {what}: {BOUNDARY_CAUTION}. {reading}"
 
 
@@ -234,6 +245,7 @@ def comparison_report(comparison) -> Report:
     for t in comparison.tests:
         pairs.setdefault((t.restricted, t.general), []).append(t)
     notes = []
+    said = False  # the boundary's why said in full under the first table on the boundary, referred to after
     for k, ((restricted, general), found) in enumerate(pairs.items()):  # one small table per nested pair
         rows, values = [], []
         boundary = found[0].boundary
@@ -259,8 +271,9 @@ def comparison_report(comparison) -> Report:
             value_names = value_names[:4] + value_names[6:]
             values = [row[:4] + row[6:] for row in values]
         tables.append(_table(f"difference_tests_{k + 1}", f"{restricted} (restricted) against {general}: difference tests",
-                             columns, rows, boundary_note(found) if boundary else None,
+                             columns, rows, boundary_note(found, first=not said) if boundary else None,
                              values=(value_names, values)))
+        said = said or bool(boundary)
     for n in comparison.not_nested:
         advice = " Compare them by AIC and BIC (lower is better)." if n.information_criteria else ""
         notes.append(f"Not tested: {n.first} and {n.second}: {n.reason}.{advice}")
@@ -502,7 +515,7 @@ def invariance_report(result) -> Report:
     warnings = (tuple(_design_caution_lines([(f"the {s.level} model", s.result) for s in result.steps]))
                 + tuple(result.warnings) + tuple(_caution_lines([(f"the {result.steps[0].level} model", first)],
                                                                 poor_fit=False)))
-    notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else T.CAUTION, warnings,
+    notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else CHECK_SOLUTIONS, warnings,
                                                      inadmissible)
     lines = (f"Reference group (factor means fixed at zero): {result.groups[0]}",
              f"{first.n_obs} rows analysed ({', '.join(f'{g.label}: {g.data.n_obs}' for g in first.groups)}); "

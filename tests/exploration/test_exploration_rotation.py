@@ -168,10 +168,28 @@ def test_random_starts_are_seeded_and_counted():
 
 def test_reported_orientation():
     result = rotate(UNROTATED, RotationSpec(RotationMethod.QUARTIMIN))
-    assert np.all(result.pattern.sum(axis=0) > 0)  # signs: each factor's loadings sum to a positive number
+    P = result.pattern
+    salient = np.abs(P) >= 0.30  # signs: most of each factor's salient loadings positive (then their sum)
+    votes, sums = np.sum(np.sign(P) * salient, axis=0), np.sum(P * salient, axis=0)
+    assert np.all((votes > 0) | ((votes == 0) & (sums > 0)))
     sums = np.sum(result.pattern**2, axis=0)
     assert np.all(np.diff(sums) <= 0)  # order: by sum of squared loadings, largest first
     np.testing.assert_allclose(result.structure, result.pattern @ result.factor_correlations)
+
+
+def test_orientation_follows_most_salient_loadings_not_the_sum_of_all():
+    # new-user trial: a factor of three positively worded items (-.56 each) and two reverse-worded ones (+.80, +.79),
+    # with small cross-loadings that made the sum of all its loadings positive, pointed the way of the two
+    vigour = np.array([-0.56, -0.56, -0.56, 0.80, 0.79, 0.07, 0.02, 0.01, 0.14, 0.02, 0.04, 0.04, -0.06, 0.21, 0.16])
+    other = np.array([0.13, 0.11, 0.06, 0.00, 0.02, 0.70, 0.66, 0.63, 0.65, 0.78, 0.01, 0.06, 0.00, 0.06, 0.07])
+    tie = np.r_[0.50, -0.60, np.full(13, 0.05)]  # one salient each way: their sum (-.10) decides, not all (+.55)
+    small = np.r_[np.full(14, 0.05), -0.20]  # none salient: the sum of all (+.50)
+    A = np.column_stack([vigour, other, tie, small])
+    assert A[:, 0].sum() > 0 and A[:, 2].sum() > 0  # the former rule (the sum of all loadings) kept these two
+    result = rotate(A, RotationSpec(RotationMethod.NONE))
+    np.testing.assert_array_equal(result.signs, [-1.0, 1.0, -1.0, 1.0])  # by hand, from the rule above
+    np.testing.assert_allclose(result.pattern, A * [-1.0, 1.0, -1.0, 1.0])
+    np.testing.assert_allclose(result.pattern[:5, 0], [0.56, 0.56, 0.56, -0.80, -0.79])
 
 
 @pytest.mark.parametrize("spec, words", [

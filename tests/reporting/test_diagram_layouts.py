@@ -215,7 +215,9 @@ def test_word_figures_fit_on_the_page(shapes):
     from docx import Document
     from docx.shared import Emu, Inches
 
-    from cfa_tool.reporting.docx_report import _figure_room, report_docx
+    from docx.shared import Pt
+
+    from cfa_tool.reporting.docx_report import HEADING_ROOM, _figure_room, report_docx
     from cfa_tool.reporting.fit_document import fit_report
 
     from docx.oxml.ns import qn
@@ -235,12 +237,13 @@ def test_word_figures_fit_on_the_page(shapes):
                 found += [k] * len(child.findall(".//" + qn("wp:inline")))
                 k += child.find(f"{qn('w:pPr')}/{qn('w:sectPr')}") is not None
         figure = [int(c.split()[1]) - 1 for c in captions]  # the figure each picture belongs to
-        for picture, s, n in zip(pictures, found, figure):  # the width of its page's text area, unless that would run
-            section = document.sections[s]  # off the page's foot (less the room of the caption and the note)
-            width = section.page_width - section.left_margin - section.right_margin
-            room = _figure_room(report.figures[n].note, Emu(width).inches)
+        for picture, s, n in zip(pictures, found, figure):  # the width of its page's text area, unless that would
+            section = document.sections[s]  # run off the page's foot (less the room of the caption and the note, and
+            width = section.page_width - section.left_margin - section.right_margin  # of the Figures heading over
+            room = _figure_room(report.figures[n].note, Emu(width).inches)  # the first figure)
             assert room >= 5 / 6  # at least the caption's two lines and the note's three, 12 pt (1/6 inch) each
-            height = section.page_height - section.top_margin - section.bottom_margin - Inches(room)
+            height = section.page_height - section.top_margin - section.bottom_margin - Inches(room) - \
+                (Pt(HEADING_ROOM) if n == 0 else 0)
             assert picture.width <= width + 1 and picture.height <= height + 1
             assert abs(picture.width - width) <= 1 or abs(picture.height - height) <= 1
     notes = [p.text for p in Document(io.BytesIO(report_docx(fit_report(shapes["method factor"]), 100))).paragraphs]

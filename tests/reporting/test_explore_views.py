@@ -8,6 +8,8 @@ axis got round values."""
 from __future__ import annotations
 
 import json
+import re
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
@@ -65,3 +67,57 @@ def test_the_scree_plot_axis_has_round_values():
     assert nice_ticks(0.0, 1.37) == [0.0, 0.5, 1.0]
     assert nice_ticks(-0.05, 0.4) == [0.0, 0.1, 0.2, 0.3, 0.4]
     assert all(f"{t:g}" != "-0" for t in nice_ticks(-0.2, 4.0))
+
+
+def test_a_problem_column_only_where_a_row_has_a_problem(shown):
+    # new-user trial: an always-empty "Problem" column spilled the tables into "(..., continued)" parts
+    name, result, report = shown
+    fits = next(t for t in report.tables if t.key == "solution_fits")
+    pattern = next(t for t in report.tables if t.key == "pattern")
+    improper = [str(step.factors) for step in result.fits if step.improper]
+    assert ("Problem" in fits.columns) == bool(improper)
+    at_bound = [row[0] for row in pattern.rows if row[0] in result.exploration.solution.at_bound]
+    assert ("Problem" in pattern.columns) == bool(at_bound)
+    if improper:  # the marks stand in the rows of the improper solutions and nowhere else
+        marked = [row[0] for row in fits.rows if row[fits.columns.index("Problem")]]
+        assert marked == improper
+    if at_bound:
+        marked = [row[0] for row in pattern.rows if row[pattern.columns.index("Problem")]]
+        assert marked == at_bound
+    assert all(len(row) == len(t.columns) for t in (fits, pattern) for row in t.rows)
+    assert name != "four_factors" or at_bound  # the Heywood case of the four factors keeps its column
+    assert name != "split" or not at_bound
+
+
+def test_the_draft_model_printed_in_a_narrow_terminal_is_the_same_model(shown):
+    # new-user trial: the draft's '#' comment lines wrapped in an 80-column terminal, continuing without '#', so the
+    # printed draft could not be copied as a model
+    from cfa_tool.language.parser import parse_model
+
+    _, result, report = shown
+    printed = report_text(report, width=80).splitlines()
+    assert max(len(line) for line in result.draft_text.splitlines()) > 80  # the case needs lines wider than that
+    start = printed.index("Draft model") + 1
+    end = next(k for k in range(start, len(printed)) if printed[k].startswith(report.notes[0][:30]))  # the next part
+    listing = printed[start:end]
+    assert max(len(line) for line in printed) <= 80
+    copied = "\n".join(listing)
+    model_lines = [x for x in copied.splitlines() if x.strip() and not x.lstrip().startswith("#")]
+    def model(text: str) -> str:  # the model read, without its text and the places of its words
+        return re.sub(r"Location\([^)]*\)", "", repr(replace(parse_model(text), text="")))
+
+    assert model(copied) == model(result.draft_text)  # copied from the terminal: the same model
+    assert model_lines == [x for x in result.draft_text.splitlines() if x.strip() and not x.lstrip().startswith("#")]
+
+    def comments(text: str) -> list[str]:
+        return " ".join(x.lstrip()[1:] for x in text.splitlines() if x.lstrip().startswith("#")).split()
+
+    assert comments(copied) == comments(result.draft_text)  # the comments' words, every one behind a '#'
+
+
+def test_the_loadings_note_says_how_signs_are_set(shown):
+    from cfa_tool.exploration.rotation import ORIENTATION_RULE
+
+    _, _, report = shown
+    pattern = next(t for t in report.tables if t.key == "pattern")
+    assert ORIENTATION_RULE in pattern.note and "most of its loadings of .30 or more" in ORIENTATION_RULE

@@ -121,3 +121,32 @@ def test_the_caption_the_drawing_and_its_note_are_kept_on_one_page():
     assert room >= 5 / 6
     for shape in document.inline_shapes:
         assert E(shape.height).inches + room <= text_height + 1e-6
+
+
+@pytest.mark.parametrize("wide", [True, False])
+def test_the_figures_heading_is_on_the_page_of_the_first_figure(wide):
+    # new-user trial: the "Figures" heading was left alone at the foot of a portrait page, the wide diagram under it
+    # starting a landscape page; now the heading opens the first figure's section, kept with it, with room for it
+    from docx.shared import Emu as E
+
+    from cfa_tool.reporting.docx_report import FIGURES, HEADING_ROOM, _figure_room
+
+    report = (fit_report(cfa_tool.fit(resource_dir("models") / "rider_three_factors.cfa",
+                                      resource_dir("demo") / "rider_survey.csv")) if wide else
+              fit_report(cfa_tool.fit(THREE_FACTORS, holzinger_swineford())))
+    document = docx.Document(io.BytesIO(report_docx(report, dpi=96)))
+    paragraphs = document.paragraphs
+    heading = [k for k, p in enumerate(paragraphs) if p.text == FIGURES and p.style.name.startswith("Heading")]
+    picture = next(k for k, p in enumerate(paragraphs) if p._p.findall(".//" + qn("wp:inline")))
+    assert len(heading) == 1 and heading[0] < picture
+    between = paragraphs[heading[0]:picture]
+    assert all(p._p.find(f"{qn('w:pPr')}/{qn('w:sectPr')}") is None for p in between)  # no section (page) break
+    assert [p.text for p in between[1:2]] == ["Figure 1"]
+    assert all(p.paragraph_format.keep_with_next for p in between)
+    orientation, _ = _figure(report)
+    assert orientation == (WD_ORIENT.LANDSCAPE if wide else WD_ORIENT.PORTRAIT)
+    section = next(s for s in document.sections if s.orientation == orientation)
+    text_height = E(section.page_height - section.top_margin - section.bottom_margin).inches
+    across = E(section.page_width - section.left_margin - section.right_margin).inches
+    shape = document.inline_shapes[0]
+    assert E(shape.height).inches + _figure_room(report.figures[0].note, across) + HEADING_ROOM / 72 <= text_height + 1e-6

@@ -193,3 +193,39 @@ def test_models_that_differ_only_by_a_bound_are_said_to_be_so(bounded_first):
     # a bound that holds nothing ('>= 0' is not reached): the same model, as before
     inactive = compare([THREE_FACTORS, THREE_FACTORS + "bound variance(x2) >= 0\n"], data)
     assert "probably equivalent models" in inactive.not_nested[0].reason
+
+
+def test_the_boundary_is_explained_once_under_several_tables(data):
+    # new-user trial: five one-row difference-test tables each repeated the same five-line note on the boundary
+    from cfa_tool.reporting.workflow_tables import BOUNDARY_CAUTION
+
+    general = TWO + "factor m: y2, y3, y5, y6\nmethod m\nuncorrelated m, a\nuncorrelated m, b\nscale m by variance\n"
+    comparison = compare([ONE, TWO, general], data)
+    report = comparison_report(comparison)
+    tables = [t for t in report.tables if t.key.startswith("difference_tests")]
+    assert len(tables) == 3 and all(t.note for t in tables)
+    explained = [t for t in tables if BOUNDARY_CAUTION in t.note]
+    assert explained == tables[:1]  # the why, once, under the first table
+    for table, found in zip(tables, [[t for t in comparison.tests if (t.restricted, t.general) == pair]
+                                     for pair in dict.fromkeys((t.restricted, t.general) for t in comparison.tests)]):
+        assert table.note.startswith(f"* On the boundary: {'; '.join(found[0].boundary)}")  # each names its own
+        if table is not tables[0]:
+            assert "see the note under the first table of difference tests" in table.note
+        for t in found:  # each table keeps its own mixture p-values
+            if not missing(t.boundary_p_value):
+                assert f"p {p_phrase(t.boundary_p_value)} for the {t.method}" in table.note
+    assert sum(len(t.note) for t in tables[1:]) < 2 * len(tables[0].note)
+
+
+def test_the_cautions_of_several_models_are_headed_for_several_solutions(data):
+    # new-user trial: compare's notice was headed "Check before interpreting this solution" for four models
+    from cfa_tool.reporting.html_report import report_html
+    from cfa_tool.reporting.tables import CAUTION
+    from cfa_tool.reporting.text_formats import report_markdown
+    from cfa_tool.reporting.workflow_tables import CHECK_SOLUTIONS
+
+    report = comparison_report(compare([ONE, TWO], data))
+    assert report.notice is not None and not report.notice.inadmissible
+    assert report.notice.heading == CHECK_SOLUTIONS == "Check before interpreting these solutions"
+    assert report_markdown(report).startswith(f"## {CHECK_SOLUTIONS}")
+    assert CAUTION not in report_markdown(report) and CAUTION not in report_html(report)
