@@ -1126,6 +1126,14 @@ def ordinal_estimator_option(method: str | None, ordinal_items, declared_by: str
     return method
 
 
+def refuse_item_named_all(items) -> None:
+    """'all' given as the ordinal items while an item is named 'all': an error, since it could mean either."""
+    if "all" in items:
+        raise OptionError("'all' is both the word for every item and an item's name, so ordinal='all' (--ordinal all) "
+                          "could mean either; to make the item 'all' ordinal alone give it as a list "
+                          "(ordinal=['all'], or --ordinal '\"all\"' on the command line), or rename it")
+
+
 def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
     items = {n.text for n in spec.ordinal}
     if ordinal is not None and not isinstance(ordinal, str) and not (
@@ -1134,10 +1142,7 @@ def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
     if isinstance(ordinal, str) and ordinal != "all" and ordinal.strip() in ("", ","):
         raise OptionError("ordinal names no items: give 'all' or item names")
     if ordinal == "all":
-        if "all" in spec.observed_names:
-            raise OptionError("'all' is both the word for every item and an item of the model, so ordinal='all' (--ordinal all) "
-                              "could mean either; to make the item 'all' ordinal alone give it as a list "
-                              "(ordinal=['all'], or --ordinal '\"all\"' on the command line), or rename it")
+        refuse_item_named_all(spec.observed_names)
         items |= set(spec.observed_names)
     elif ordinal:
         for name in ([ordinal] if isinstance(ordinal, str) else ordinal):

@@ -675,6 +675,9 @@ def _ordinal_items(ordinal, items: tuple[str, ...]) -> tuple[str, ...]:
     if ordinal is None:
         return ()
     if ordinal == "all":
+        from cfa_tool.pipeline.inputs import refuse_item_named_all
+
+        refuse_item_named_all(items)
         return tuple(items)
     names = [ordinal] if isinstance(ordinal, str) else list(ordinal)
     for name in names:

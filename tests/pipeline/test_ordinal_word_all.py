@@ -16,7 +16,7 @@ MODEL = "factor f: on_time, short_wait, accurate_info, all\nfactor g: seat_avail
 
 def test_the_word_all_beside_an_item_named_all_is_refused(rider_demo):
     frame = rider_demo.rename(columns={"easy_transfer": "all"})
-    with pytest.raises(OptionError, match="'all' is both the word for every item and an item of the model"):
+    with pytest.raises(OptionError, match="'all' is both the word for every item and an item's name"):
         cfa_tool.fit(MODEL, frame, ordinal="all")
 
 
@@ -32,3 +32,12 @@ def test_on_the_command_line(tmp_path, rider_demo, capsys):
     (tmp_path / "m.cfa").write_text(MODEL)
     assert main(["fit", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "d.csv"), "--ordinal", "all"]) == 2
     assert "--ordinal '\"all\"' on the command line" in capsys.readouterr().err
+
+
+def test_explore_refuses_the_word_all_beside_an_item_named_all(rider_demo):
+    # the same rule where explore reads --ordinal (it resolved 'all' on its own and made every item ordinal)
+    frame = rider_demo.rename(columns={"easy_transfer": "all"})
+    items = ["on_time", "short_wait", "accurate_info", "all", "seat_available", "clean", "temperature",
+             "room_to_stand"]
+    with pytest.raises(OptionError, match="'all' is both the word for every item and an item's name"):
+        cfa_tool.explore(frame, items=items, ordinal="all")
