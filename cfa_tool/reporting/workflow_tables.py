@@ -259,10 +259,13 @@ def comparison_report(comparison) -> Report:
             values.append([t.method, None if t.not_computed else t.chi_square_difference, t.df_difference,
                            None if t.not_computed else t.p_value, t.delta_cfi, t.delta_rmsea, t.not_computed,
                            "; ".join(t.boundary), None if missing(t.boundary_p_value) else t.boundary_p_value])
-        if boundary:
+        if boundary:  # the why once, in the first such caution; the later ones name what lies on their boundary
+            said = any(BOUNDARY_CAUTION in c for c in cautions)
             cautions.append(f"{restricted} against {general}: the restricted model has {'; '.join(boundary)}: "
-                            f"{BOUNDARY_CAUTION}; read the p-values of this comparison as approximate (see the note "
-                            f"under its table).")
+                            + ("values on the boundary too, so read the p-values of this comparison as approximate "
+                               "as well." if said else
+                               f"{BOUNDARY_CAUTION}; read the p-values of this comparison as approximate (see the "
+                               f"note under its table)."))
         columns = [("Test", "l"), ("Difference (df)", "r"), ("p", "r"), ("\u0394CFI", "r"), ("\u0394RMSEA", "r")]
         value_names = ["Test", "Chi-square difference", "df difference", "p", "\u0394CFI", "\u0394RMSEA",
                        "Not computed because", "On the boundary", "p, one parameter on the boundary"]

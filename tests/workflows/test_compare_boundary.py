@@ -229,3 +229,15 @@ def test_the_cautions_of_several_models_are_headed_for_several_solutions(data):
     assert report.notice.heading == CHECK_SOLUTIONS == "Check before interpreting these solutions"
     assert report_markdown(report).startswith(f"## {CHECK_SOLUTIONS}")
     assert CAUTION not in report_markdown(report) and CAUTION not in report_html(report)
+
+
+def test_the_caution_box_explains_the_boundary_once(data):
+    # views trial: the caution box at the top repeated the same long sentence on the boundary for every pair
+    from cfa_tool.reporting.workflow_tables import BOUNDARY_CAUTION
+
+    general = TWO + "factor m: y2, y3, y5, y6\nmethod m\nuncorrelated m, a\nuncorrelated m, b\nscale m by variance\n"
+    report = comparison_report(compare([ONE, TWO, general], data))
+    lines = [line for line in report.notice.lines if "the restricted model has" in line]
+    assert len(lines) >= 2
+    assert sum(BOUNDARY_CAUTION in line for line in lines) == 1 and BOUNDARY_CAUTION in lines[0]
+    assert all("read the p-values of this comparison as approximate" in line for line in lines)
