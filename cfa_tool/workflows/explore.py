@@ -333,7 +333,7 @@ def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: t
         general = next((c for c in codings if not c.items), None)
         unlisted = [printable(c) + (f" ('{printable(cell)}' in row {row})" if cell is not None else "")
                     for c in text[:10] for cell, row in [_first_unlisted(frame[c], general)]]
-        said += (f" Left out as text holding none of the answers file's words (--answers): "
+        said += (" Left out as text holding none of the answers file's words (--answers): "
                  + ", ".join(unlisted) + (f" and {len(text) - 10} more" if len(text) > 10 else "") + ".")
     elif text:
         from cfa_tool.data.answer_scales import suggested_statement

@@ -310,7 +310,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     loaded = api.analysed_odd_values(loaded, spec, group)
     with api.odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
         result = api._fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
-                               design)
+                               design, ids)  # the rows left out named by their ids, as fit names them
         api.reference_group_applies(result, reference_group)  # one that sets nothing cannot apply, as in fit
         if not result.admissible:
             problem = next((p for p in result.problems if p.kind.inadmissible), None)

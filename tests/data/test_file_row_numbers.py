@@ -212,3 +212,11 @@ def test_replicate_applies_the_sheet_to_the_workbook_only(rider_demo, rider_mode
                  "--sheet", "Responses"]) == 2
     err = capsys.readouterr().err
     assert "is an Excel workbook, so a sheet ('Responses') cannot be chosen" in err and len(err.splitlines()) == 1
+
+
+def test_scores_name_the_footer_row_by_its_id_as_fit_does(rider_demo, rider_model, tmp_path):
+    """Re-check of the merged round: with --id, fit named the footer by its text and scores only by its number."""
+    path, _, footer_row = _export(rider_demo, tmp_path / "export.xlsx")
+    scored = cfa_tool.scores(rider_model, str(path), id_column="rider_id")
+    said = scored.warnings + tuple(scored.fit.warnings) + tuple(scored.notes)
+    assert any(f"left out (row {footer_row} ('{FOOTER}'))" in w for w in said)
