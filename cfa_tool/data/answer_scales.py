@@ -38,6 +38,22 @@ def distinct_words(values: np.ndarray) -> list[str]:
     return list(written.values())
 
 
+def stray_text(values: np.ndarray) -> bool:
+    """Whether a column's text cells look like slips among numbers (a typed 'x', a '?'), not answers recorded as
+    words: at most 3 text cells (or 1% of the cells), against at least ten times as many numbers."""
+    texts = numbers = 0
+    for value in values:
+        if isinstance(value, str):
+            if value.strip():
+                if strict_number(value.strip()) is None:
+                    texts += 1
+                else:
+                    numbers += 1
+        elif value is not None and not (isinstance(value, float) and value != value):
+            numbers += 1
+    return 0 < texts <= max(3, len(values) // 100) and numbers >= 10 * texts
+
+
 def suggested_statement(values: np.ndarray) -> str | None:
     """The 'answers' statement to write for a column whose words (case and surrounding spaces aside) all come from
     one common agreement, frequency or satisfaction scale, in the scale's order with the words as the file writes

@@ -12,7 +12,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.answer_scales import MOST_WORDS_SHOWN, distinct_words, suggested_statement
+from cfa_tool.data.answer_scales import MOST_WORDS_SHOWN, distinct_words, stray_text, suggested_statement
 from cfa_tool.data.kept_rows import cell_words
 from cfa_tool.errors import DataError, EstimationError, printable
 from cfa_tool.options import Option
@@ -186,6 +186,10 @@ def _object_column(column: pd.Series, name: str, source: str) -> np.ndarray:
             if text.lower() in ("true", "false"):
                 raise DataError(f"{where}: holds TRUE/FALSE values; indicators must be numbers")
             shown = printable(text if len(text) <= 40 else text[:37] + "...")
+            if stray_text(values):  # a slip among numbers, not a column of words
+                raise DataError(f"{source}: column '{printable(name)}' holds text ('{shown}' in "
+                                f"{cell_words(column, name, numbers[row])}) among numbers; correct the cell, or leave "
+                                f"it empty for no answer")
             raise DataError(f"{source}: column '{printable(name)}' is used as an indicator but holds text ('{shown}' in "
                             f"{cell_words(column, name, numbers[row])}); indicators must be numbers: {_recoding(text)}"
                             + _statement_hint(values))

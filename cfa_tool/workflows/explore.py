@@ -460,7 +460,8 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
     """An item named in --items that holds words no answers file codes: an error naming the column, the cell and
     what explore takes (an answers file, with the statement the words suggest); cells holding digits or other
     values are left to the reading of the items (data.moments), which names them."""
-    from cfa_tool.data.answer_scales import suggested_statement
+    from cfa_tool.data.answer_scales import stray_text, suggested_statement
+    from cfa_tool.data.kept_rows import cell_words
     from cfa_tool.data.moments import row_numbers
     from cfa_tool.numbers import number as strict_number
 
@@ -477,6 +478,10 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
                     and not any(ch.isdigit() for ch in cell) and cell.strip().lower() not in ("true", "false")):
                 continue
             shown = printable(cell.strip() if len(cell.strip()) <= 40 else cell.strip()[:37] + "...")
+            if stray_text(values):  # a slip among numbers, as fit reads it (data.answer_scales.stray_text)
+                raise DataError(f"{source}: column '{printable(name)}' holds text ('{shown}' in "
+                                f"{cell_words(column, name, row)}) among numbers; correct the cell, or leave it empty "
+                                f"for no answer")
             statement = suggested_statement(values)
             where = f"{source}: column '{printable(name)}' holds words ('{shown}' in row {row}), and explore analyses numbers"
             if codings:

@@ -419,3 +419,24 @@ def test_words_of_no_common_scale_are_pointed_to_the_statement(tmp_path, capsys)
     frame.to_csv(tmp_path / "text.csv", index=False)
     assert main(["check", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "text.csv")]) == 2
     assert "'answers' statement" not in capsys.readouterr().err
+
+
+def test_a_slip_among_numbers_is_a_cell_to_correct_not_a_scale_of_words(tmp_path, capsys):
+    """One typed 'x' among 300 numbers: fit and explore name the cell and say to correct it (they advised recoding
+    the column's words, and explore an answers file); a column of words keeps that advice."""
+    from cfa_tool.data.answer_scales import stray_text
+
+    numbers = _answers()
+    numbers["seat"] = numbers["seat"].astype(object)
+    numbers.loc[41, "seat"] = "x"
+    numbers.to_csv(tmp_path / "slip.csv", index=False)
+    (tmp_path / "m.cfa").write_text(PLAIN)
+    for argv in (["fit", str(tmp_path / "m.cfa"), "--data", str(tmp_path / "slip.csv")],
+                 ["explore", "--data", str(tmp_path / "slip.csv"), "--items", ",".join(ITEMS)]):
+        assert main(argv) == 2
+        err = capsys.readouterr().err
+        assert "column 'seat' holds text ('x' in row 43) among numbers; correct the cell" in err  # line 43: row 42 + header
+        assert "answers" not in err
+    assert stray_text(np.array([1.0] * 30 + ["x"], dtype=object))
+    assert not stray_text(np.array(["Agree", "Disagree"] * 20 + [1.0], dtype=object))  # a column of words
+    assert not stray_text(np.array([1.0] * 5 + ["x"], dtype=object))  # too few numbers to call it a slip

@@ -46,7 +46,7 @@ def test_missing_file(tmp_path):
 def test_text_in_an_indicator_column():
     data = _frame().astype(object)
     data.loc[7, "b"] = "n/a?"
-    with pytest.raises(DataError, match=r"column 'b' .* holds text \('n/a\?' in row 8\)"):
+    with pytest.raises(DataError, match=r"column 'b' holds text \('n/a\?' in row 8\) among numbers; correct the cell"):
         cfa_tool.fit(MODEL, data)
 
 

@@ -190,7 +190,7 @@ def test_text_cells_that_say_no_answer_are_read_as_missing_and_codes_then_apply(
     # other text is named where it is (column, row, value), whatever codes are given
     text.loc[12, "c1"] = "n/k"
     text.to_csv(path, index=False)
-    with pytest.raises(DataError, match=r"column 'c1' is used as an indicator but holds text \('n/k' in row 14\)"):
+    with pytest.raises(DataError, match=r"column 'c1' holds text \('n/k' in row 14\) among numbers"):
         cfa_tool.check(MODEL + "reversed c2 on 0 to 3\n", path, missing_codes=[9])
 
 
