@@ -626,7 +626,7 @@ def poor_fit_problems(read) -> tuple[Problem, ...]:
         return ()
     return (Problem(ProblemKind.POOR_FIT, (), None,
                     f"The model fits these data poorly ({'; '.join(missed)}: bounds of common practice, not laws; "
-                    f"MacCallum, Browne & Sugawara 1996), so its loadings, reliability and any scores describe a model "
-                    f"the data do not support.",
+                    f"an RMSEA above .10 is poor fit in MacCallum, Browne & Sugawara 1996), so its loadings, "
+                    f"reliability and any scores describe a model the data do not support.",
                     "read the largest residual correlations and modification indices and compare rival models before "
                     "interpreting the estimates; a model changed because of these data needs new data to confirm it."),)
