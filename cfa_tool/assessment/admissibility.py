@@ -606,22 +606,18 @@ def poor_fit_problems(read) -> tuple[Problem, ...]:
     beyond the bounds of poor fit (:data:`cfa_tool.assessment.fit_indices.POOR_FIT_BOUNDS`): the loadings, reliability
     and scores then describe a model the data do not support, and a reader of those tables should hear it first."""
     from cfa_tool.assessment.fit_indices import POOR_FIT_BOUNDS as BOUND
-    from cfa_tool.numerics.plain import decimals_beside
+    from cfa_tool.numerics.plain import journal_decimal
 
     if read is None or read.df <= 0:
         return ()
-
-    def shown(value: float, bound: float) -> str:
-        text = f"{value:.{decimals_beside(value, bound)}f}"
-        return text[1:] if text.startswith("0.") else text
-
     prefix = "" if read.test == "normal" else "robust "
-    cfi_bound, rmsea_bound = (f"{BOUND[k]:.2f}"[1:] for k in ("cfi", "rmsea"))
     missed = []
     if np.isfinite(read.cfi) and read.cfi < BOUND["cfi"]:
-        missed.append(f"{prefix}CFI {shown(read.cfi, BOUND['cfi'])}, below {cfi_bound}")
+        missed.append(f"{prefix}CFI {journal_decimal(read.cfi, BOUND['cfi'])}, below "
+                      f"{journal_decimal(BOUND['cfi'], digits=2)}")
     if np.isfinite(read.rmsea) and read.rmsea > BOUND["rmsea"]:
-        missed.append(f"{prefix}RMSEA {shown(read.rmsea, BOUND['rmsea'])}, above {rmsea_bound}")
+        missed.append(f"{prefix}RMSEA {journal_decimal(read.rmsea, BOUND['rmsea'])}, above "
+                      f"{journal_decimal(BOUND['rmsea'], digits=2)}")
     if not missed:
         return ()
     return (Problem(ProblemKind.POOR_FIT, (), None,

@@ -85,3 +85,10 @@ def decimals_beside(value: float, limit: float | None, digits: int = 3, most: in
         if (shown > limit) == (value > limit) and (shown < limit) == (value < limit):
             return d
     return most
+
+
+def journal_decimal(value: float, beside: float | None = None, digits: int = 3) -> str:
+    """A value below 1 as journals print indices, without the leading zero ('.931'), to ``digits`` decimals or as
+    many more as it takes to print on the side of ``beside``, a guide it is judged by (:func:`decimals_beside`)."""
+    text = f"{value:.{decimals_beside(value, beside, digits)}f}"
+    return text[1:] if text.startswith("0.") else text

@@ -24,7 +24,7 @@ from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ord
                                       with_missing_reading, with_rows_read)
 from cfa_tool.assessment.admissibility import ProblemKind, group_size_problems
 from cfa_tool.assessment.fit_indices import GUIDE_VALUES
-from cfa_tool.numerics.plain import decimals_beside
+from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
@@ -595,22 +595,15 @@ def _total_moments(result: FitResult, higher: dict, rows: dict, factor: str, gro
     return mean, float(g.latent_covariance[i, i])
 
 
-def _decimal(value: float, beside: float | None = None) -> str:
-    """Three decimals without the leading zero of a value below 1, as journals print fit indices (more when it lies
-    so near ``beside``, a guide value, that three would print it on the wrong side: numerics.plain.decimals_beside)."""
-    text = f"{value:.{decimals_beside(value, beside)}f}"
-    return text[1:] if text.startswith("0.") else text
-
-
 def _judged(fit: dict[str, float]) -> str:
     """The indices of :func:`_fit_values` against :data:`CONFIGURAL_GUIDES`, those that miss theirs first:
     'RMSEA .0605, above .06; CFI .951 and SRMR .046 meet theirs'."""
     below = ("cfi",)  # a higher value fits better
     missed = [k for k, v in fit.items() if (v < CONFIGURAL_GUIDES[k] if k in below else v > CONFIGURAL_GUIDES[k])]
-    guide = {k: _decimal(g).rstrip("0") for k, g in CONFIGURAL_GUIDES.items()}
-    said = [f"{k.upper()} {_decimal(fit[k], CONFIGURAL_GUIDES[k])}, {'below' if k in below else 'above'} {guide[k]}"
+    guide = {k: journal_decimal(g).rstrip("0") for k, g in CONFIGURAL_GUIDES.items()}
+    said = [f"{k.upper()} {journal_decimal(fit[k], CONFIGURAL_GUIDES[k])}, {'below' if k in below else 'above'} {guide[k]}"
             for k in missed]
-    met = [f"{k.upper()} {_decimal(v, CONFIGURAL_GUIDES[k])}" for k, v in fit.items() if k not in missed]
+    met = [f"{k.upper()} {journal_decimal(v, CONFIGURAL_GUIDES[k])}" for k, v in fit.items() if k not in missed]
     if met:
         said.append(f"{' and '.join(met)} {'meets its' if len(met) == 1 else 'meet theirs'}")
     return "; ".join(said)
