@@ -473,8 +473,14 @@ def replicated_problems(table: ParameterTable, model, thetas: np.ndarray,
         mats = [model.matrices(theta, g) for g in range(table.n_groups)]
         with np.errstate(all="ignore"):
             found = solution_problems(table, mats, theta, None, True, "", 0, standardized_loadings)
-        out.append(tuple(dict.fromkeys(replicated_problem_words(p) for p in found if p.kind.inadmissible)))
+        out.append(inadmissible_words(found))
     return tuple(out)
+
+
+def inadmissible_words(problems: Iterable[Problem]) -> tuple[str, ...]:
+    """The problems that make one replicated solution inadmissible, each once, in the words of
+    :func:`replicated_problem_words` (empty: admissible)."""
+    return tuple(dict.fromkeys(replicated_problem_words(p) for p in problems if p.kind.inadmissible))
 
 
 def replicated_problem_words(problem: Problem) -> str:

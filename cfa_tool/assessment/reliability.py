@@ -217,8 +217,10 @@ def reliability(mats: ModelMatrices, observed: tuple[str, ...], latent: tuple[st
         # specific factors are not compared (the module docstring)
         others = np.zeros(m, dtype=bool)
         others[first_order] = True
-        apart = np.array([[latent[b] in shared.get(latent[a], ()) for b in range(m)] for a in range(m)],
-                         dtype=bool).reshape(m, m)
+        apart = np.zeros((m, m), dtype=bool)  # a general factor and its specific ones (none outside bifactor models)
+        index = {name: j for j, name in enumerate(latent)}
+        for a, sharing in shared.items():
+            apart[index[a], [index[b] for b in sharing]] = True
         compared = others[None, :] & ~np.eye(m, dtype=bool) & ~apart
         largest_a = np.where(compared, np.abs(corr_lat), -np.inf).max(axis=1)
         largest_l, holds_l = largest_a.tolist(), (np.sqrt(ave) > largest_a).tolist()

@@ -361,14 +361,14 @@ def _check_zero_disturbances(spec: Spec, fixed: dict[tuple, tuple[float, Paramet
 def _check_contradictions(spec: Spec) -> None:
     fixed: dict[tuple, tuple[float, ParameterRef]] = {}
     latent = set(spec.factor_names)
-    indicated = {i.text for f in spec.factors for i in f.indicators}  # factors of a higher-order factor
+    top = set(exogenous_factors(spec))  # factors below no other (the rest are a higher-order factor's indicators)
     for setting in spec.fixed:
         for ref in setting.refs:
             if ref.kind == "variance" and setting.value < 0:
                 raise _fail(spec, f"{ref} is fixed to {setting.value:g}, but a variance cannot be negative; fix it to 0 "
                                   f"or more", ref.location)
             if (ref.kind == "variance" and setting.value == 0 and len(set(ref.names)) == 1
-                    and ref.names[0] in latent and ref.names[0] not in indicated):
+                    and ref.names[0] in top):
                 # a higher-order factor's own part (its residual variance) may be 0; a factor with no variance at
                 # all measures nothing, and its loadings cannot be estimated
                 raise _fail(spec, f"{ref} is fixed to 0: a factor without variance measures nothing, and its "
@@ -378,7 +378,7 @@ def _check_contradictions(spec: Spec) -> None:
             if key in fixed and fixed[key][0] != setting.value:
                 raise _fail(spec, f"{ref} is fixed to {setting.value:g} here but to {fixed[key][0]:g} on line {fixed[key][1].location.line}", ref.location)
             fixed[key] = (setting.value, ref)
-    _check_zero_disturbances(spec, fixed, latent & indicated)
+    _check_zero_disturbances(spec, fixed, latent - top)
     for ref in spec.freed:
         if _gkey(ref) in fixed:
             raise _fail(spec, f"{ref} is both fixed (line {fixed[_gkey(ref)][1].location.line}) and freed", ref.location)

@@ -19,7 +19,7 @@ from enum import Enum
 import numpy as np
 import pandas as pd
 
-from cfa_tool.assessment.admissibility import replicated_problem_words
+from cfa_tool.assessment.admissibility import inadmissible_words
 from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.errors import CfaError
 from cfa_tool.method import MissingData, Weighting
@@ -112,7 +112,7 @@ def _refit(result: FitResult | None, keys: tuple[Key, ...]) -> Refit:
     return Refit(Outcome.CONVERGED, np.array([r.estimate for r in found]), np.array([r.standardized for r in found]),
                  np.array([r.se for r in found]), result.robust.cfi_robust, result.robust.rmsea_robust,
                  result.fit.srmr, result.robust.p_value_scaled,
-                 tuple(dict.fromkeys(replicated_problem_words(p) for p in result.problems if p.kind.inadmissible)))
+                 inadmissible_words(result.problems))
 
 
 def resample(task) -> Refit:
