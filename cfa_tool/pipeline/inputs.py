@@ -365,12 +365,12 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     if id_column is not None:
         _id_can_apply(spec, ordinal, fit_options)
     loaded = analysed_odd_values(loaded, spec, group)
+    by_row = ids_by_row_number(ids, frame)
     with odd_values_named(loaded):
         result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
-                                       ordinal_estimator, design, ids), ids_by_row_number(ids, frame))
+                                       ordinal_estimator, design, ids), by_row)
     reference_group_applies(result, reference_group)
-    result = with_missing_reading(with_odd_values(result, loaded, group, spec, design, ids_by_row_number(ids, frame)),
-                                  loaded, missing_codes)
+    result = with_missing_reading(with_odd_values(result, loaded, group, spec, design, by_row), loaded, missing_codes)
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 
@@ -833,7 +833,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                                           values)
         notes += group_notes
         if ids is not None:  # the rows that answer nothing named by their ids too (a footer: its text)
-            groups = [(label, replace(m, unanswered_ids=tuple(ids.get(int(r) - 1) for r in m.unanswered_rows)))
+            by_row = ids_by_row_number(ids, ids)  # row numbers by the one rule (data.moments.row_numbers)
+            groups = [(label, replace(m, unanswered_ids=tuple(by_row.get(int(r)) for r in m.unanswered_rows)))
                       if m.unanswered_rows is not None and len(m.unanswered_rows) else (label, m) for label, m in groups]
         result = converged(fit_moments(spec, groups, fit_options, group_column=group))
     if design is not None:

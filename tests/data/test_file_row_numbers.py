@@ -220,3 +220,15 @@ def test_scores_name_the_footer_row_by_its_id_as_fit_does(rider_demo, rider_mode
     scored = cfa_tool.scores(rider_model, str(path), id_column="rider_id")
     said = scored.warnings + tuple(scored.fit.warnings) + tuple(scored.notes)
     assert any(f"left out (row {footer_row} ('{FOOTER}'))" in w for w in said)
+
+
+def test_rows_that_answer_nothing_are_named_by_their_ids_whatever_the_frame_index(rider_demo, rider_model):
+    """A data frame indexed by text: the rows left out for answering nothing kept their numbers but lost their ids
+    (the ids were looked up at the row number less one, which only an index counting rows from 0 gives)."""
+    frame = rider_demo.copy()
+    frame.loc[frame.index[[3, 7]], ITEMS] = np.nan
+    frame.index = [f"r{k}" for k in range(len(frame))]
+    ids = frame["rider_id"].iloc[[3, 7]].tolist()
+    result = cfa_tool.fit(rider_model, frame, id_column="rider_id")
+    note = next(w for w in result.warnings if "answered none of the model variables" in w)
+    assert f"rows 4 ('{ids[0]}'), 8 ('{ids[1]}')" in note
