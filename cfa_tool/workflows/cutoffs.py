@@ -216,7 +216,7 @@ def fit_cutoffs(spec: Spec, result: FitResult, replications: int = 200, seed: in
         sample = _sampler(spec, result, replications, seeds, workers, scheduler, progress, patterns)
         observed = {"cfi": result.fit.cfi, "rmsea": result.fit.rmsea, "srmr": result.fit.srmr}
     wrong, what, size = misspecify()
-    (correct, judged_correct), (mis, judged_mis) = sample(result.implied_covariance, n), sample(wrong, n)
+    (correct, judged_correct), (mis, judged_mis) = sample(result.implied_covariance, n, True), sample(wrong, n, True)
     if len(correct) < 10 or len(mis) < 10:
         raise OptionError("too few simulated fits converged to set cutoffs")
     found = _cutoffs(correct, mis)
@@ -282,7 +282,8 @@ def _ordinal_sampler(spec: Spec, result: FitResult, replications: int, seeds: np
     fitting = OrdinalFitting.of_fit(spec, result, keep_levels=False)
     thresholds = fit_thresholds(result)
 
-    def sample(sigma: np.ndarray, n: int) -> np.ndarray:
+    def sample(sigma: np.ndarray, n: int, judge: bool = False) -> np.ndarray:
+        # ``judge`` as for _sampler's: here each sample's fit judges itself in its worker, at no extra cost
         states = seeds.spawn(1)[0].generate_state(replications)
         tasks = [(fitting, sigma, thresholds, n, int(s), ()) for s in states]
         draws = [d for d in run_tasks(simulated_fit, tasks, workers, scheduler, progress) if d.converged]
@@ -301,12 +302,13 @@ def _sampler(spec: Spec, result: FitResult, replications: int, seeds: np.random.
     mean = result.groups[0].implied_mean if patterns is not None else None
     table, model = model_structure(spec, None, patterns is not None)
 
-    def sample(sigma: np.ndarray, n: int) -> tuple[np.ndarray, tuple[tuple[str, ...], ...]]:
+    def sample(sigma: np.ndarray, n: int, judge: bool = False) -> tuple[np.ndarray, tuple[tuple[str, ...], ...]]:
+        """``judge``: also say why each sample is not admissible (only the samples the report counts: () else)."""
         states = seeds.spawn(1)[0].generate_state(replications)
         tasks = [(spec, sigma, result.observed, n, int(s), result.theta, patterns, mean) for s in states]
         draws = [d for d in run_tasks(_replicate, tasks, workers, scheduler, progress,
                                       refits_together(REFITS_TOGETHER, len(result.theta)), batched=True) if d[0]]
-        judged = replicated_problems(table, model, np.array([d[4] for d in draws])) if draws else ()
+        judged = replicated_problems(table, model, np.array([d[4] for d in draws])) if draws and judge else ()
         return np.array([d[1:4] for d in draws]).reshape(-1, len(INDICES)), judged
 
     return sample
