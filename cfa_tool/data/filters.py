@@ -9,6 +9,7 @@ text written YYYY-MM-DD, compare as dates).
 from __future__ import annotations
 
 import datetime
+import operator
 import re
 from dataclasses import dataclass
 
@@ -22,6 +23,10 @@ from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.language.names import written_name
 from cfa_tool.numbers import number
 from cfa_tool.suggest import close_names
+
+#: the test of each operator a row filter may use (the comparisons of the filter's column with its value)
+OPERATOR_TESTS = {"=": operator.eq, "!=": operator.ne, "<": operator.lt, "<=": operator.le, ">": operator.gt,
+             ">=": operator.ge}
 
 _PATTERN = re.compile(r'^\s*(?:"(?P<quoted>[^"]+)"|(?P<plain>[^\s=!<>"]+))\s*(?P<op><=|>=|!=|==|=|<|>)\s*(?P<value>.+?)\s*$')
 
@@ -38,6 +43,10 @@ class RowFilter:
 
     def __str__(self) -> str:
         return self.text
+
+    def meets(self, value) -> bool:
+        """Whether a cell holding ``value`` (a number, compared with a number) meets the filter."""
+        return bool(OPERATOR_TESTS[self.operator](value, self.value))
 
     def in_words(self) -> str:
         """The filter as a methods section words it: 'district was north', 'age was at least 18', '"wave 2" was
@@ -77,7 +86,7 @@ def parse_filter(text: str) -> RowFilter:
     return RowFilter(column, op, value, text.strip())
 
 
-OPERATORS = ("=", "!=", "<", "<=", ">", ">=")
+OPERATORS = tuple(OPERATOR_TESTS)
 _FIRST_OPERATOR = re.compile(r"<=|>=|!=|==|=|<|>")
 
 
@@ -178,10 +187,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
             target = label_text(f.value)
             if target.casefold() in ("true", "false") and values.isin(("TRUE", "FALSE")).any():
                 target = target.upper()  # a TRUE/FALSE cell as a spreadsheet shows it, whatever the case typed
-        keep = {
-            "=": values == target, "!=": values != target, "<": values < target, "<=": values <= target,
-            ">": values > target, ">=": values >= target,
-        }[f.operator] & column.notna()
+        keep = OPERATOR_TESTS[f.operator](values, target) & column.notna()
         absent = ""
         if f.operator in ("=", "!=") and not (values == target).any():  # a value no row has: which ones are there
             absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "

@@ -63,15 +63,11 @@ def apply_missing_codes(frame: pd.DataFrame, codes, source: str | Path, items: C
         (kept_codes_note(source, kept, filters),) if kept else ())
 
 
-#: the test of each operator of a row filter, as data.filters applies it to numbers
-_KEEPS = {"=": lambda a, b: a == b, "!=": lambda a, b: a != b, "<": lambda a, b: a < b, "<=": lambda a, b: a <= b,
-          ">": lambda a, b: a > b, ">=": lambda a, b: a >= b}
-
-
 def _left_out(column: str, code: float, filters: Collection) -> bool:
-    """Whether a row filter given (``filters``) already leaves out the rows whose ``column`` holds ``code``."""
-    return any(str(f.column) == str(column) and isinstance(f.value, (int, float)) and f.operator in _KEEPS
-               and not _KEEPS[f.operator](code, f.value) for f in filters)
+    """Whether a row filter given (``filters``: data.filters.RowFilter) already leaves out the rows whose ``column``
+    holds ``code``."""
+    return any(str(f.column) == str(column) and isinstance(f.value, (int, float)) and not f.meets(code)
+               for f in filters)
 
 
 def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int]], filters: Collection = ()) -> str:
