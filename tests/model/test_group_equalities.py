@@ -8,7 +8,8 @@ groups: factor means").
 Check values: the equal-means model of Holzinger & Swineford (1939), grouped by school, refitted by an independent
 scipy minimisation of the multi-group normal-theory discrepancy (Joreskog 1971; Sorbom 1974 for the mean structure),
 written here from the formula; its chi-square 204.605 on 63 df and the scalar model's 164.103 on 60 df are also the
-values the lavaan tutorial prints for these models (recalled from memory, not looked up)."""
+values widely published for these models of the Holzinger & Swineford (1939) data by school (recalled from
+memory, not looked up)."""
 
 from __future__ import annotations
 
@@ -91,7 +92,7 @@ def test_equal_factor_means_hold_every_groups_means_at_the_reference_groups():
     assert equal.fit.df == scalar.fit.df + 3  # three factor means no longer estimated
     minimum, loadings = _independent_equal_means_fit(frame)
     assert equal.fit.chi_square == pytest.approx(minimum, rel=1e-5)
-    assert equal.fit.chi_square == pytest.approx(204.605, abs=5e-3)  # lavaan tutorial, recalled from memory
+    assert equal.fit.chi_square == pytest.approx(204.605, abs=5e-3)  # widely published, recalled from memory
     ours = [e.estimate for e in equal.estimates if e.kind == "loading" and e.group == "Pasteur"
             and e.variables[1] not in ("x1", "x4", "x7")]
     np.testing.assert_allclose(ours, loadings, rtol=1e-4)
