@@ -390,7 +390,6 @@ def _check_contradictions(spec: Spec) -> None:
         for ref in bound.refs:
             if _gkey(ref) in fixed:
                 raise _fail(spec, f"{ref} is fixed, so a bound on it has no effect; remove one of the two", ref.location)
-    _check_start_values(spec)
     lower: dict[tuple, float] = {}
     upper: dict[tuple, float] = {}
     for bound in spec.bounds:
@@ -417,28 +416,6 @@ def _check_contradictions(spec: Spec) -> None:
             raise _fail(spec, "'equal' can only join parameters of one kind (all loadings, all variances, ...)", group[0].location)
         if len({r.group for r in group}) > 1:
             raise _fail(spec, "'equal' within 'in group' applies to one group; to hold parameters equal across groups use 'invariance LEVEL' or 'equal across groups: ...'", group[0].location)
-
-
-def _check_start_values(spec: Spec) -> None:
-    """One start value for each parameter, and one for parameters held equal (which are one parameter): two
-    different values would leave one of them unused without a word (and simulate would draw from the other)."""
-    started: dict[tuple, tuple[float, ParameterRef]] = {}
-    for setting in spec.starts:
-        for ref in setting.refs:
-            key = _gkey(ref)
-            if key in started and started[key][0] != setting.value:
-                value, first = started[key]
-                raise _fail(spec, f"{ref} is given the start value {setting.value:g} here but {value:g} on line "
-                                  f"{first.location.line}; give it one", ref.location)
-            started.setdefault(key, (setting.value, ref))
-    for group in spec.equal:
-        values = [(started[_gkey(r)], r) for r in group if _gkey(r) in started]
-        for (value, first), ref in values[1:]:
-            (value0, first0), ref0 = values[0]
-            if value != value0:
-                raise _fail(spec, f"{ref0} and {ref} are held equal (line {group[0].location.line}) but given "
-                                  f"different start values: {value0:g} on line {first0.location.line} and {value:g} on "
-                                  f"line {first.location.line}; give them one", first.location)
 
 
 def _check_indicator_counts(spec: Spec) -> None:

@@ -426,12 +426,8 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             raise no_effect(ref, "'noninvariant'")
 
     start = np.full(n_free, np.nan)
-    for setting in spec.starts:
-        for ref in refs_in_order(setting.refs):
-            for g in groups_of(ref):
-                k = free_index(ref, g)
-                if k is not None:
-                    start[k] = setting.value
+    for k, value in _start_values(spec, groups_of, free_index, multi).items():
+        start[k] = value
     lower = np.full(n_free, -np.inf)
     upper = np.full(n_free, np.inf)
     for bound in spec.bounds:
@@ -480,6 +476,58 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         array.setflags(write=False)  # tables are shared between fits of the same model
     return ParameterTable(observed, latent, tuple(parameters), n_free, start, lower, upper, tuple(free_labels),
                           group_labels, means, multi, reverse_keyed)
+
+
+def _start_values(spec: Spec, groups_of, free_index, multi: bool) -> dict[int, float]:
+    """The start value of each free parameter the 'start' statements give (index -> value).
+
+    A start given in one group ('in group north: start ...') replaces the start for every group there, in
+    whatever order the two are written; two starts of one parameter in one scope, or two different starts of
+    parameters that are one free parameter (held equal by 'equal', 'invariance' or 'equal across groups'), are
+    an error naming both lines: one of them would go unused without a word (and simulate would draw its
+    population from the other)."""
+    given: dict[tuple, tuple[float, ParameterRef]] = {}  # (group, kind, names) -> the start that applies there
+    for setting in spec.starts:
+        for ref in setting.refs:
+            for g in groups_of(ref):
+                key = (g, *ref.key())
+                if key in given:
+                    value, first = given[key]
+                    if (first.group is None) != (ref.group is None):  # one group's start replaces every group's
+                        if ref.group is None:
+                            continue
+                    elif value != setting.value:
+                        raise _fail(spec, f"{ref} is given the start value {setting.value:g} here but {value:g} on "
+                                          f"line {first.location.line}; give it one", ref)
+                given[key] = (setting.value, ref)
+    starts: dict[int, tuple[float, ParameterRef, tuple]] = {}
+    written = lambda item: (item[1][1].location.line, item[1][1].location.column)  # noqa: E731
+    for key, (value, ref) in sorted(given.items(), key=written):
+        index = free_index(ref, key[0])
+        if index is None:
+            continue
+        if index not in starts:
+            starts[index] = (value, ref, key)
+            continue
+        value0, ref0, key0 = starts[index]
+        if value != value0:
+            ties = []
+            if key[1:] != key0[1:]:
+                lines = sorted({group[0].location.line for group in spec.equal
+                                if {r.key() for r in group} & {key0[1:], key[1:]}})
+                if lines:
+                    ties.append(f"(line{'s' if len(lines) > 1 else ''} {' and '.join(map(str, lines))})")
+            if key[0] != key0[0]:
+                where = spec.equalities_location
+                ties.append("across groups" + (f" (line {where.line})" if where is not None  # else set by a step
+                                               else " (by the invariance step being fitted)"))  # of 'invariance'
+            exempt = (f", or let them differ across groups with 'noninvariant {reference_text(*key[1:])}'"
+                      if multi and key[1:] == key0[1:] else "")
+            held = " ".join(["held equal", " and ".join(ties)]).strip()
+            raise _fail(spec, f"{ref0} and {ref} are {held} but given different start values: {value0:g} on line "
+                              f"{ref0.location.line} and {value:g} on line {ref.location.line}; give them "
+                              f"one{exempt}", ref)
+    return {index: value for index, (value, _, _) in starts.items()}
 
 
 def _entry_kind(entry: dict) -> str:

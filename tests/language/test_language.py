@@ -210,13 +210,8 @@ def _error(text: str) -> ModelError:
          "'scale e by variance' and the fix of variance(e) (line 4) both set the scale of 'e'"),
         ('factor "a b": c, d, g\nscale "a b" by variance\nfix variance("a b") = 2\n', 2, 7,
          "'scale \"a b\" by variance' and the fix of variance(\"a b\") (line 3)"),
-        # hostile trial 10, 06: two start values for parameters held equal were resolved silently (simulate drew
-        # from one of them); the same parameter started twice too
-        ("factor f: a, b, c\nequal loading(f, b), loading(f, c)\nstart loading(f, b) = 0.5\n"
-         "start loading(f, c) = 1.5\n", 4, 7, "loading(f, b) and loading(f, c) are held equal (line 2) but given "
-                                              "different start values: 0.5 on line 3 and 1.5 on line 4"),
-        ("factor f: a, b, c\nstart variance(a) = 0.5\nstart variance(a) = 2\n", 3, 7,
-         "variance(a) is given the start value 2 here but 0.5 on line 2"),
+        # two start values for one parameter: tests/model/test_start_conflicts.py (refused where tied parameters
+        # become one free parameter)
         # hostile trial 10, 02: 'scale latent by ...' with exploratory blocks only applied to no factor, silently
         ("exploratory factors f1, f2 from a, b, c, d, e, g\nscale latent by effects\n", 2, 1,
          "'scale latent by effects' applies to no factor"),
