@@ -11,7 +11,7 @@ from __future__ import annotations
 from cfa_tool.suggest import close_names
 from cfa_tool.errors import Location, ModelError
 from cfa_tool.language.names import written_name
-from cfa_tool.language.spec import ParameterRef, Spec, answer_key
+from cfa_tool.language.spec import ParameterRef, Spec, answer_key, fix_sets_scale
 
 
 def _fail(spec: Spec, message: str, location: Location | None) -> ModelError:
@@ -127,9 +127,8 @@ def _check_scaling(spec: Spec) -> None:
         for ref in setting.refs:
             if ref.names[0] in block:
                 continue
-            if ref.group is None and ref.kind == "loading" and ref.names[0] in factors and setting.value != 0:
-                fixed_scale.setdefault(ref.names[0], ref)  # a loading fixed at 0 sets no scale
-            elif ref.group is None and ref.kind == "variance" and ref.names[0] in factors:
+            if (ref.group is None and ref.kind in ("loading", "variance") and ref.names[0] in factors
+                    and fix_sets_scale(ref.kind, setting.value)):
                 fixed_scale.setdefault(ref.names[0], ref)
     for setting in spec.scaling:
         if not setting.factors:  # 'scale latent by ...': every factor outside exploratory blocks
@@ -344,7 +343,7 @@ def _check_zero_disturbances(spec: Spec, fixed: dict[tuple, tuple[float, Paramet
     loading on the factor above, must be fixed at a value other than 0 (Bollen 1989, ch. 7: every latent
     variable needs a scale)."""
     loads = {ref.names for (group, (kind, _)), (value, ref) in fixed.items()
-             if kind == "loading" and group is None and value != 0.0}
+             if kind == "loading" and group is None and fix_sets_scale(kind, value)}
     for (group, (kind, names)), (value, ref) in fixed.items():
         if kind != "variance" or value != 0.0 or group is not None or names[0] not in lower:
             continue
@@ -420,7 +419,7 @@ def _check_contradictions(spec: Spec) -> None:
 
 def _check_indicator_counts(spec: Spec) -> None:
     fixed_keys = {r.key() for s in spec.fixed for r in s.refs if r.group is None}
-    set_apart = {r.key() for s in spec.fixed for r in s.refs if r.group is None and s.value == 0}  # sets no scale
+    set_apart = {r.key() for s in spec.fixed for r in s.refs if r.group is None and not fix_sets_scale(r.kind, s.value)}
     constrained = (fixed_keys - set_apart) | {r.key() for g in spec.equal for r in g}
     exo = exogenous_factors(spec)
     zero = {p.key() for p in spec.uncorrelated}

@@ -60,6 +60,16 @@ def equality_words(classes) -> list[str]:
 SCALING_METHODS = ("marker", "variance", "effects")
 
 
+def fix_sets_scale(kind: str, value: float) -> bool:
+    """Whether fixing a factor's loading or variance at ``value`` gives the factor its scale (then no automatic
+    scale is added, and a 'scale' statement for the factor would be a second one).  A fixed variance does; a
+    fixed loading does unless it is 0: a zero loading sets its item apart from the factor (as for a nested
+    comparison) and says nothing of the factor's unit (Bollen 1989, ch. 7: a latent variable takes its scale from
+    a loading fixed at a value other than 0 or from its fixed variance).  The one rule of the language's checks
+    and of the parameter table."""
+    return kind != "loading" or value != 0
+
+
 @dataclass(frozen=True)
 class Name:
     text: str

@@ -37,7 +37,8 @@ from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.options import Option
 from cfa_tool.language.checks import all_refs, exogenous_factors
 from cfa_tool.language.names import reference_text, written_name
-from cfa_tool.language.spec import GROUP_EQUALITY_WORDS, INVARIANCE_CLASSES, ParameterRef, Spec, equality_words
+from cfa_tool.language.spec import (GROUP_EQUALITY_WORDS, INVARIANCE_CLASSES, ParameterRef, Spec, equality_words,
+                                    fix_sets_scale)
 
 MATRIX_CODES = {"L": 0, "B": 1, "P": 2, "T": 3, "N": 4, "M": 5, "K": 6}
 
@@ -288,7 +289,8 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             var_key = (g, "variance", (f,))
             # a loading the model fixes at 0 (an item set apart, as for a nested comparison) sets no scale: the
             # automatic scale is kept and uses the factor's other loadings
-            zero = {k for k in load_keys if entries[k]["origin"] == "user" and entries[k]["fixed"] == 0}
+            zero = {k for k in load_keys if entries[k]["origin"] == "user" and entries[k]["fixed"] is not None
+                    and not fix_sets_scale("loading", entries[k]["fixed"])}
             if entries[var_key]["origin"] == "user" or any(entries[k]["origin"] == "user" for k in load_keys
                                                            if k not in zero):
                 continue

@@ -2,10 +2,13 @@
 
 from __future__ import annotations
 
+import inspect
+
 import pytest
 
 from cfa_tool.errors import ModelError
-from cfa_tool.language import parse_model
+from cfa_tool.language import checks, parse_model
+from cfa_tool.language.spec import fix_sets_scale
 from cfa_tool.model.parameters import build_parameter_table
 
 FULL = """# Rider experience survey: three correlated traits
@@ -332,3 +335,25 @@ def test_a_loading_fixed_at_zero_sets_no_scale():
     assert labels["loading(f, b)"] == (False, 1.0, "scale") and labels["factor_variance(f)"][0]
     labels = scale_of("factor f: a, b, c\nfix loading(f, b) = 0\nscale f by variance\n")
     assert labels["factor_variance(f)"] == (False, 1.0, "scale") and labels["loading(f, a)"][0]
+
+
+def test_one_rule_says_which_fix_gives_a_factor_its_scale():
+    # the rule was written out in four places (the 'scale' check, the two-indicator check, the check of a zero
+    # disturbance, the parameter table's automatic scale): one predicate now, read by all four
+    assert fix_sets_scale("loading", 0.7) and fix_sets_scale("loading", -1.0)
+    assert not fix_sets_scale("loading", 0) and not fix_sets_scale("loading", -0.0)
+    assert fix_sets_scale("variance", 1.0) and fix_sets_scale("variance", 0.0)
+    for function in (checks._check_scaling, checks._check_indicator_counts, checks._check_zero_disturbances,
+                     build_parameter_table):
+        assert "fix_sets_scale(" in inspect.getsource(function), function.__name__
+    # what the four decide with it: a zero loading is no scale in any of them
+    for text, words in [
+        # a disturbance fixed at 0 with a zero loading beside it: still no scale for the factor
+        ("factor a: a1, a2, a3\nfactor b: b1, b2, b3\nfactor c: c1, c2, c3\nfactor g: a, b, c\nfix variance(a) = 0\n"
+         "fix loading(a, a1) = 0\n", "which sets no scale for 'a'"),
+        # two indicators, the variance fixed and the other loading fixed at 0: one constraint, not two
+        ("factor f: a, b\nfix variance(f) = 1\nfix loading(f, a) = 0\n", "two indicators and no correlation"),
+    ]:
+        assert words in _error(text).message
+    parse_model("factor f: a, b, c\nfix loading(f, a) = 0\nscale f by variance\n")  # no second scale
+    parse_model("factor f: a, b\nfix variance(f) = 1\nfix loading(f, a) = 0.8\n")  # two constraints
