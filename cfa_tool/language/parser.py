@@ -116,8 +116,18 @@ def parse_model(text: str, source: str = "<model>") -> Spec:
 def _parse_model(text: str, source: str) -> Spec:
     from cfa_tool.language.checks import check_spec
 
+    tree, builder = _tree(text, source)
+    spec = builder.build(tree)
+    check_spec(spec)
+    return spec
+
+
+def _tree(text: str, source: str, what: str = "the model text") -> tuple[Tree, _Builder]:
+    """The grammar's tree of a text in the model language, and the builder that reads its statements: a NUL
+    character refused (``what`` names the text in that message), line ends made plain, a last line end added,
+    and a syntax error given as one sentence with the line and column."""
     if "\x00" in text:
-        raise ModelError("the model text contains a NUL character; is this a binary file?", Location(source, 1, 1))
+        raise ModelError(f"{what} contains a NUL character; is this a binary file?", Location(source, 1, 1))
     text = normalise_line_ends(text)
     lines = tuple(text_lines(text))
     if not text.endswith("\n"):
@@ -126,9 +136,7 @@ def _parse_model(text: str, source: str) -> Spec:
         tree = _parser().parse(text)
     except UnexpectedInput as exc:
         raise _syntax_error(exc, source, lines) from None
-    spec = _Builder(source, text, lines).build(tree)
-    check_spec(spec)
-    return spec
+    return tree, _Builder(source, text, lines)
 
 
 def read_answers_file(path: str | Path) -> tuple[AnswerCoding, ...]:
@@ -136,15 +144,9 @@ def read_answers_file(path: str | Path) -> tuple[AnswerCoding, ...]:
     reads answers recorded as words before there is a model.  Each statement is read by the model's own grammar and
     builder; any other statement is an error naming its line, since explore would not use it."""
     source = str(path)
-    text = normalise_line_ends(decode_model_bytes(input_bytes(path, "answers file", ModelError, MAX_MODEL_BYTES), source))
-    if "\x00" in text:
-        raise ModelError("the answers file contains a NUL character; is this a binary file?", Location(source, 1, 1))
-    lines = tuple(text_lines(text))
-    try:
-        tree = _parser().parse(text if text.endswith("\n") else text + "\n")
-    except UnexpectedInput as exc:
-        raise _syntax_error(exc, source, lines) from None
-    builder = _Builder(source, text, lines)
+    text = decode_model_bytes(input_bytes(path, "answers file", ModelError, MAX_MODEL_BYTES), source)
+    tree, builder = _tree(text, source, "the answers file")
+    lines = builder.lines
     codings = []
     for stmt in tree.children:
         if stmt.data != "answers_stmt":

@@ -357,3 +357,28 @@ def test_one_rule_says_which_fix_gives_a_factor_its_scale():
         assert words in _error(text).message
     parse_model("factor f: a, b, c\nfix loading(f, a) = 0\nscale f by variance\n")  # no second scale
     parse_model("factor f: a, b\nfix variance(f) = 1\nfix loading(f, a) = 0.8\n")  # two constraints
+
+
+def test_an_answers_file_is_read_as_a_model_file_is(tmp_path):
+    # read_answers_file repeated the model's steps (NUL check, line ends, parse, syntax errors); one private
+    # parser._tree serves both, with the same messages
+    from cfa_tool.language import parser
+
+    for function in (parser._parse_model.__wrapped__, parser.read_answers_file):
+        assert "_tree(" in inspect.getsource(function), function.__name__
+    path = tmp_path / "scale.cfa"
+    path.write_bytes(b'# agreement\r\nanswers "No" = 0, "Yes" = 1\r\n')  # Windows line ends, no model
+    (coding,) = parser.read_answers_file(path)
+    assert coding.codes_by_word() == {"no": 0.0, "yes": 1.0} and coding.location.line == 2
+    for raw, line, column, words in [
+        (b'answers "No" = 0\x00\n', 1, 1, "the answers file contains a NUL character; is this a binary file?"),
+        (b'answers "No" 0\n', 1, 14, "expected '='"),
+        (b'answers "No" = 0\nfactor f: a, b, c\n', 2, 1, "an answers file holds 'answers' statements only"),
+        (b'# nothing\n', 1, 1, "holds no 'answers' statement"),
+    ]:
+        path.write_bytes(raw)
+        with pytest.raises(ModelError) as info:
+            parser.read_answers_file(path)
+        assert words in info.value.message
+        assert (info.value.location.line, info.value.location.column) == (line, column)
+    assert "the model text contains a NUL character" in _error("factor f: a, b, c\x00\n").message
