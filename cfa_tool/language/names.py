@@ -11,6 +11,7 @@ its names and its group exactly (:func:`read_reference`), whatever commas, brack
 from __future__ import annotations
 
 import re
+from collections.abc import Callable, Sequence
 
 _PLAIN = re.compile(r"[A-Za-z_][A-Za-z0-9_]*\Z")  # the grammar's NAME (grammar/model.lark)
 
@@ -146,3 +147,46 @@ def comma_hint(part: str, columns) -> str:
     if whole is None:
         return ""
     return f"; a name that holds a comma is written in double quotes: '{printable(written_name(whole))}'"
+
+
+MAX_RANGE = 2_000  # names in one range such as item1..item9
+
+
+def range_names(first: str, last: str, fail: Callable[[str], Exception]) -> list[str]:
+    """The names of the range ``first..last`` as the model language counts them, wherever a range is written (a
+    model file's lists, ``--ordinal``): the two ends are one name but for one number, counted up ('item1..item9',
+    'mood1_t2..mood5_t2'; a number written with leading zeros keeps its width, 'q01..q12').  ``fail(message)``
+    is the error to raise for a range that cannot be counted."""
+    clipped = f"'{clip(first)}..{clip(last)}'"
+    prefix, low, high, suffix = _counted_part(first, last, fail)
+    if max(len(low), len(high)) > 9:
+        raise fail(f"the numbers of the range {clipped} are too long (at most 9 digits)")
+    lo, hi = int(low), int(high)
+    if lo > hi:
+        raise fail(f"the range '{first}..{last}' counts down; write the smaller number first")
+    if hi - lo >= MAX_RANGE:
+        raise fail(f"the range '{first}..{last}' names {hi - lo + 1:,} variables; a range names at most {MAX_RANGE:,}")
+    width = len(low) if low.startswith("0") else 0
+    return [f"{prefix}{str(i).zfill(width)}{suffix}" for i in range(lo, hi + 1)]
+
+
+def clip(text: object, width: int = 40) -> str:
+    """Text shortened to ``width`` characters for a message."""
+    text = str(text)
+    return text if len(text) <= width else text[: width - 3] + "..."
+
+
+def _counted_part(first: str, last: str, fail: Callable[[str], Exception]) -> tuple[str, str, str, str]:
+    """The text before the counted number, the number at each end (as written) and the text after it: the one
+    place where the ends differ ('mood1_t2..mood5_t2' counts 1 to 5 before '_t2'), or the last number of a
+    range whose two ends are the same name."""
+    parts1, parts2 = re.findall(r"\d+|\D+", first), re.findall(r"\d+|\D+", last)
+    numbers = [k for k, part in enumerate(parts1) if part[0].isdigit()]
+    if not numbers or not any(part[0].isdigit() for part in parts2):
+        raise fail(f"a range such as 'item1..item9' needs names with a number to count; got '{first}..{last}'")
+    differ = [k for k, (a, b) in enumerate(zip(parts1, parts2)) if a != b]
+    if len(parts1) != len(parts2) or len(differ) > 1 or (differ and not parts1[differ[0]][0].isdigit()):
+        raise fail(f"the two ends of the range '{first}..{last}' must be the same name but for one number (such as "
+                   f"'item1..item9' or 'mood1_t2..mood5_t2')")
+    k = differ[0] if differ else numbers[-1]
+    return "".join(parts1[:k]), parts1[k], parts2[k], "".join(parts1[k + 1:])

@@ -43,6 +43,7 @@ from cfa_tool.language.spec import (
     ValueSetting,
 )
 from cfa_tool.language.grammar_tables import model_parser
+from cfa_tool.language.names import clip, range_names
 
 STATEMENT_WORDS = ("name", "factor", "covary", "uncorrelated", "fix", "free", "equal", "start", "bound", "scale", "in",
                    "invariance", "noninvariant", "ordinal", "reversed", "method", "exploratory", "near", "answers")
@@ -59,18 +60,12 @@ _TERMINAL_WORDS = {
 
 MAX_MODEL_BYTES = 1_000_000
 MODEL_SUFFIX = ".cfa"  # the extension of model files
-MAX_RANGE = 2_000  # names in one range such as item1..item9
 MAX_NAMES = 20_000  # names written by all ranges of one model
 MAX_PAIRS = 20_000  # pairs named by 'covary' and 'uncorrelated' in one model
 #: the largest size of an end of a declared answer scale ('reversed ... on LOW to HIGH'): scales of answers run from a
 #: few to some hundreds of points (0 to 100 for a slider), so ends beyond a million are typing errors, and their sums
 #: lose the answers' digits
 LARGEST_SCALE_END = 1e6
-
-
-def _clip(text: object, width: int = 40) -> str:
-    text = str(text)
-    return text if len(text) <= width else text[: width - 3] + "..."
 
 
 @lru_cache(maxsize=1)
@@ -231,7 +226,7 @@ def _continuation_message(exc: UnexpectedToken, lines: tuple[str, ...], line: in
         return f"line {line} starts with a comma; {CONTINUES}: move it to the end of line {before}"
     if (exc.token.type in ("NAME", "STRING") and not close_names(str(exc.token), STATEMENT_WORDS)
             and _LIST_LINE.match(text) and not lines[before - 1].split("#", 1)[0].rstrip().endswith(",")):
-        return (f"unknown statement '{_clip(exc.token)}'; if line {line} goes on with the list of line {before}, end "
+        return (f"unknown statement '{clip(exc.token)}'; if line {line} goes on with the list of line {before}, end "
                 f"line {before} with a comma ({CONTINUES})")
     return None
 
@@ -265,7 +260,7 @@ def _dashed_span_at(lines: tuple[str, ...], line: int, column: int) -> str | Non
 
 def _unexpected_token_message(exc: UnexpectedToken) -> str:
     token = exc.token
-    shown = "the end of the line" if token.type == "_NL" else f"'{_clip(token)}'"
+    shown = "the end of the line" if token.type == "_NL" else f"'{clip(token)}'"
     expected = sorted(exc.accepts or exc.expected)
     words = [_terminal_word(name) for name in expected]
     if "'factor'" in words:  # the parser wanted a new statement
@@ -651,37 +646,12 @@ class _Builder:
         ends = node.children
         first, last = (self.name(end).text for end in ends)
         at = ends[0].children[0]
-        prefix, low, high, suffix = self._counted_part(str(first), str(last), at)
-        if max(len(low), len(high)) > 9:
-            raise self.error(f"the numbers of the range '{_clip(first)}..{_clip(last)}' are too long (at most 9 digits)", at)
-        lo, hi = int(low), int(high)
-        if lo > hi:
-            raise self.error(f"the range '{first}..{last}' counts down; write the smaller number first", at)
-        if hi - lo >= MAX_RANGE:
-            raise self.error(f"the range '{first}..{last}' names {hi - lo + 1:,} variables; a range names at most "
-                             f"{MAX_RANGE:,}", at)
-        width = len(low) if low.startswith("0") else 0
+        names = range_names(first, last, lambda message: self.error(message, at))
         location = self.loc(at)
-        self.expanded += hi - lo + 1
+        self.expanded += len(names)
         if self.expanded > MAX_NAMES:
             raise self.error(f"the ranges of this model name more than {MAX_NAMES:,} variables in all", at)
-        return [Name(f"{prefix}{str(i).zfill(width)}{suffix}", location) for i in range(lo, hi + 1)]
-
-    def _counted_part(self, first: str, last: str, at) -> tuple[str, str, str, str]:
-        """The text before the counted number, the number at each end (as written) and the text after it: the one
-        place where the ends differ ('mood1_t2..mood5_t2' counts 1 to 5 before '_t2'), or the last number of a
-        range whose two ends are the same name."""
-        parts1, parts2 = re.findall(r"\d+|\D+", first), re.findall(r"\d+|\D+", last)
-        numbers = [k for k, part in enumerate(parts1) if part[0].isdigit()]
-        if not numbers or not any(part[0].isdigit() for part in parts2):
-            raise self.error(f"a range such as 'item1..item9' needs names with a number to count; got "
-                             f"'{first}..{last}'", at)
-        differ = [k for k, (a, b) in enumerate(zip(parts1, parts2)) if a != b]
-        if len(parts1) != len(parts2) or len(differ) > 1 or (differ and not parts1[differ[0]][0].isdigit()):
-            raise self.error(f"the two ends of the range '{first}..{last}' must be the same name but for one number "
-                             f"(such as 'item1..item9' or 'mood1_t2..mood5_t2')", at)
-        k = differ[0] if differ else numbers[-1]
-        return "".join(parts1[:k]), parts1[k], parts2[k], "".join(parts1[k + 1:])
+        return [Name(name, location) for name in names]
 
     def refs(self, node: Tree) -> tuple[ParameterRef, ...]:
         refs = []
