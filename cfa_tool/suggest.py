@@ -30,11 +30,3 @@ def dotted_span(text: str) -> str | None:
     return f"{match.group(1)}..{match.group(2)}" if match else None
 
 
-def one_by_one(name: str) -> str:
-    """For a span written with a dash where names are given one by one (a list of items): how to write them
-    ('; give the items one by one, ...'), or nothing for other text."""
-    span = dotted_span(name)
-    if span is None:
-        return ""
-    first, last = span.split("..")
-    return f"; give the items one by one, separated by commas ('{first}, ..., {last}')"

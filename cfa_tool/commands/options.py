@@ -164,7 +164,8 @@ def add_incomplete_rows_option(p: argparse.ArgumentParser, where: str = "") -> N
 
 def add_ordinal_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--ordinal", metavar="ITEMS",
-                   help="'all' or comma-separated items to treat as ordinal (thresholds and polychoric correlations)")
+                   help="'all' or comma-separated items to treat as ordinal (thresholds and polychoric correlations); "
+                        "a range item1..item9 names the items it counts, as in a model file")
     add_ordinal_estimator_option(p)
 
 
@@ -182,11 +183,9 @@ def ordinal_arg(text: str | None):
         return "all"
     from cfa_tool.language.names import read_name_list
 
-    names = []
+    names = []  # a range 'item1..item9' stays as it is written, for the commands to count (language.names.ordinal_names)
     for raw, ends in read_name_list(text, "--ordinal"):
-        if raw is None and len(ends) > 1:
-            raise OptionError(f"--ordinal: give item names, not a span ('{printable('..'.join(ends))}')")
-        name = raw if raw is not None else ends[0]
+        name = raw if raw is not None else "..".join(ends)
         if name.strip() if raw is not None else name:
             names.append(name)
     return names

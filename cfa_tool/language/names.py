@@ -190,3 +190,42 @@ def _counted_part(first: str, last: str, fail: Callable[[str], Exception]) -> tu
                    f"'item1..item9' or 'mood1_t2..mood5_t2')")
     k = differ[0] if differ else numbers[-1]
     return "".join(parts1[:k]), parts1[k], parts2[k], "".join(parts1[k + 1:])
+
+
+def ordinal_names(given: str | Sequence[str], items: Sequence[str], among: str) -> list[str]:
+    """The items that ``--ordinal`` / ``ordinal=`` names (one name or a list, 'all' handled before), each one of
+    ``items`` (``among`` says what they are in an error: 'an indicator in the model').  A range such as
+    'item1..item9' names the items the model language's range names (:func:`range_names`); a name that is one of
+    ``items`` is that item, whatever it holds (a column may be named 'a..b'); spaces around a name or a range's end
+    do not count, as the data's headers are read.  A name that is no item, a range whose end is no item and a range
+    that counts a name that is no item are errors naming the option and the name."""
+    from cfa_tool.errors import OptionError, printable
+    from cfa_tool.options import Option
+    from cfa_tool.suggest import close_names, dotted_span
+
+    names: list[str] = []
+    for name in [given] if isinstance(given, str) else given:
+        if name not in items and name.strip() in items:
+            name = name.strip()
+        ends = [end.strip() for end in name.split("..")]
+        if name in items or len(ends) != 2 or not all(ends):
+            if name not in items:
+                span = dotted_span(name)
+                hint = comma_hint(name, items) or (f"; a range of items is written with two dots: '{printable(span)}'"
+                                                   if span is not None else "")
+                raise OptionError(f"'{printable(name)}' is given as ordinal but is not {among}{hint}")
+            names.append(name)
+            continue
+        option = Option.ORDINAL.given(name)
+        for end in ends:
+            if end not in items:
+                guess = close_names(end, items)
+                raise OptionError(f"{option}: the range's end '{printable(end)}' is not {among}"
+                                  + (f"; did you mean '{printable(guess[0])}'?" if guess else ""))
+        counted = range_names(ends[0], ends[1], lambda message: OptionError(f"{option}: {message}"))
+        missing = [x for x in counted if x not in items]
+        if missing:
+            raise OptionError(f"{option}: the range counts '{printable(missing[0])}', which is not {among}; name the "
+                              f"ordinal items one by one, separated by commas")
+        names.extend(counted)
+    return names

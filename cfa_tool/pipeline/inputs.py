@@ -1146,16 +1146,9 @@ def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
         refuse_item_named_all(spec.observed_names)
         items |= set(spec.observed_names)
     elif ordinal:
-        for name in ([ordinal] if isinstance(ordinal, str) else ordinal):
-            if name not in spec.observed_names and name.strip() in spec.observed_names:
-                name = name.strip()  # as the model's quoted names and the data's headers are read
-            if name not in spec.observed_names:
-                from cfa_tool.language.names import comma_hint
-                from cfa_tool.suggest import one_by_one
+        from cfa_tool.language.names import ordinal_names
 
-                raise OptionError(f"'{printable(name)}' is given as ordinal but is not an indicator in the model"
-                                  + (comma_hint(name, spec.observed_names) or one_by_one(name)))
-            items.add(name)
+        items.update(ordinal_names(ordinal, spec.observed_names, "an indicator in the model"))
     return items
 
 

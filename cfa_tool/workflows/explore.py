@@ -684,14 +684,9 @@ def _ordinal_items(ordinal, items: tuple[str, ...]) -> tuple[str, ...]:
 
         refuse_item_named_all(items)
         return tuple(items)
-    names = [ordinal] if isinstance(ordinal, str) else list(ordinal)
-    for name in names:
-        if name not in items:
-            from cfa_tool.suggest import one_by_one
+    from cfa_tool.language.names import ordinal_names
 
-            raise OptionError(f"'{printable(name)}' is given as ordinal but is not one of the items explored"
-                              + one_by_one(name))
-    return tuple(names)
+    return tuple(dict.fromkeys(ordinal_names(ordinal, items, "one of the items explored")))
 
 
 def _correlations(frame, names, source, ordinal_items, notes):
