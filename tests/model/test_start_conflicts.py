@@ -31,39 +31,38 @@ def _start_of(text: str, label: str, groups=None) -> float:
     return float(table.start[table.free_labels.index(label)])
 
 
-@pytest.mark.parametrize("text, groups, line, column, words", [
-    # checks._check_start_values' cases (hostile trial 10, 06), with the same lines and words
-    ("factor f: a, b, c\nequal loading(f, b), loading(f, c)\nstart loading(f, b) = 0.5\nstart loading(f, c) = 1.5\n",
-     None, 4, 7, "loading(f, b) and loading(f, c) are held equal (line 2) but given different start values: 0.5 on "
-                 "line 3 and 1.5 on line 4; give them one"),
-    ("factor f: a, b, c\nstart variance(a) = 0.5\nstart variance(a) = 2\n", None, 3, 7,
-     "variance(a) is given the start value 2 here but 0.5 on line 2; give it one"),
-    # the tie of 'invariance' across groups (the last start won before)
-    (F + "invariance metric\nstart loading(f, b) = 0.5\nin group north: start loading(f, b) = 0.7\n", GROUPS, 5, 23,
-     "loading(f, b) and loading(f, b) in group north are held equal across groups (line 3) but given different start "
-     "values: 0.5 on line 4 and 0.7 on line 5; give them one, or let them differ across groups with 'noninvariant "
-     "loading(f, b)'"),
-    (F + "equal across groups: loadings\nin group south: start loading(f, b) = 0.9\n"
-         "in group north: start loading(f, b) = 0.7\n", GROUPS, 5, 23,
-     "loading(f, b) in group south and loading(f, b) in group north are held equal across groups (line 3) but given "
-     "different start values: 0.9 on line 4 and 0.7 on line 5"),
-    # a group-specific start written before the start for every group: still two values for one parameter
-    (F + "invariance scalar\nin group north: start intercept(a) = 3\nstart intercept(a) = 2.5\n", GROUPS, 5, 7,
-     "intercept(a) in group north and intercept(a) are held equal across groups (line 3) but given different start "
-     "values: 3 on line 4 and 2.5 on line 5"),
+# the model's statements after F, the place of the error (line, column) and what it says
+ACROSS_GROUPS = {
+    "invariance metric\nstart loading(f, b) = 0.5\nin group north: start loading(f, b) = 0.7\n": (
+        (5, 23), "loading(f, b) and loading(f, b) in group north are held equal across groups (line 3) but given "
+                 "different start values: 0.5 on line 4 and 0.7 on line 5; give them one, or let them differ across "
+                 "groups with 'noninvariant loading(f, b)'"),
+    "equal across groups: loadings\nin group south: start loading(f, b) = 0.9\nin group north: start loading(f, b) = 0.7\n":
+        ((5, 23), "loading(f, b) in group south and loading(f, b) in group north are held equal across groups (line 3)"),
+    # a group's start written before the start for every group: still two values for one parameter
+    "invariance scalar\nin group north: start intercept(a) = 3\nstart intercept(a) = 2.5\n": ((5, 7), "3 on line 4 and 2.5 on line 5"),
     # 'equal' and the groups together: two parameters of two groups that are one parameter
-    (F + "invariance metric\nequal loading(f, b), loading(f, c)\nin group north: start loading(f, b) = 0.5\n"
-         "in group south: start loading(f, c) = 0.8\n", GROUPS, 6, 23,
-     "loading(f, b) in group north and loading(f, c) in group south are held equal (line 4) and across groups "
-     "(line 3) but given different start values: 0.5 on line 5 and 0.8 on line 6; give them one"),
-    # the same parameter started twice in one group
-    (F + "in group north: start variance(d) = 1\nin group north: start variance(d) = 2\n", GROUPS, 4, 23,
-     "variance(d) in group north is given the start value 2 here but 1 on line 3; give it one"),
-])
-def test_two_start_values_for_one_parameter_are_refused(text, groups, line, column, words):
+    "invariance metric\nequal loading(f, b), loading(f, c)\nin group north: start loading(f, b) = 0.5\n"
+    "in group south: start loading(f, c) = 0.8\n": ((6, 23), "loading(f, b) in group north and loading(f, c) in group "
+                                                            "south are held equal (line 4) and across groups (line 3)"),
+    "in group north: start variance(d) = 1\nin group north: start variance(d) = 2\n": (
+        (4, 23), "variance(d) in group north is given the start value 2 here but 1 on line 3; give it one"),
+}
+# checks._check_start_values' cases (hostile trial 10, 06) with their lines and words, and the ties across groups
+# (the last start won before)
+CASES = [("factor f: a, b, c\nequal loading(f, b), loading(f, c)\nstart loading(f, b) = 0.5\nstart loading(f, c) = 1.5\n",
+          None, (4, 7), "loading(f, b) and loading(f, c) are held equal (line 2) but given different start values: 0.5 on "
+                        "line 3 and 1.5 on line 4; give them one"),
+         ("factor f: a, b, c\nstart variance(a) = 0.5\nstart variance(a) = 2\n", None, (3, 7),
+          "variance(a) is given the start value 2 here but 0.5 on line 2; give it one")] + [
+    (F + statements, GROUPS, place, words) for statements, (place, words) in ACROSS_GROUPS.items()]
+
+
+@pytest.mark.parametrize("text, groups, place, words", CASES)
+def test_two_start_values_for_one_parameter_are_refused(text, groups, place, words):
     err = _error(text, groups)
     assert words in err.message, err.message
-    assert (err.location.source, err.location.line, err.location.column) == ("m.cfa", line, column)
+    assert (err.location.source, err.location.line, err.location.column) == ("m.cfa", *place)
 
 
 def test_one_start_value_for_tied_parameters_is_accepted():
