@@ -297,8 +297,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ``divisor`` ('n-1' as published, or 'n').
     ``group``: a column whose values define groups (multi-group fit with a mean structure);
     ``reference_group``: the group whose factor means are fixed at zero.
-    ``ordinal``: 'all' or a list of items to treat as ordinal (as does an 'ordinal' statement in
-    the model): thresholds and polychoric correlations, fitted by ``ordinal_estimator``
+    ``ordinal``: 'all' or a list of items to treat as ordinal, ranges such as 'item1..item9' among them (as does
+    an 'ordinal' statement in the model): thresholds and polychoric correlations, fitted by ``ordinal_estimator``
     ('diagonally-weighted' or 'unweighted' least squares) with robust standard errors.
     ``id_column``: a column that names each row (never analysed; not a model variable or the group
     column): the case diagnostics name their rows by it beside the row number; without it, a

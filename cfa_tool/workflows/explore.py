@@ -567,7 +567,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     varimax, quartimin (default), oblimin, geomin, promax, target (with ``target``: a matrix with NaN where
     unspecified, or the path of a target file, exploration.target_file, whose columns give the number of
     factors) or none; ``extraction``: maximum-likelihood (default) or least-squares; ``ordinal``: 'all' or
-    items to analyse by polychoric correlations; ``split``: a seed: explore one random half of the rows and fit
+    items to analyse by polychoric correlations (ranges such as 'item1..item9' among them); ``split``: a seed: explore one random half of the rows and fit
     the draft model on the other; ``replications`` and ``seed``: of parallel analysis and the rotation's random
     starts; ``threshold``: the loading at which an item counts on a factor in the draft model; ``answers``: the
     path of an answers file, whose 'answers' statements (as a model file writes them) code answers recorded as
