@@ -17,7 +17,6 @@ import math
 
 from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
-from cfa_tool.assessment.fit_indices import GUIDE_VALUES
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors
 from cfa_tool.assessment.reliability import BifactorPart, Keying
@@ -27,10 +26,12 @@ from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
-from cfa_tool.reporting.numbers import index_text, num, p_phrase, signed, unit
+from cfa_tool.reporting.numbers import fit_index_text, guides_text, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
 
 CHI = "\u03c7\u00b2"
+#: the indices whose guides the paragraph names as examples
+READ_FIRST = ("cfi", "rmsea", "srmr")
 WORDS = {1: "one", 2: "two", 3: "three", 4: "four", 5: "five", 6: "six", 7: "seven", 8: "eight", 9: "nine", 10: "ten"}
 
 
@@ -520,11 +521,11 @@ def _fit_sentence(result) -> str:
         rl, rh = r.rmsea_robust_ci90
         pieces = ", ".join(f"{name} {value:.3f}" for name, value in r.pieces)
         return (f"The {_test_phrase(r.test)} gave {CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
-                f"({pieces}); robust CFI = {index_text(r.cfi_robust, beside=GUIDE_VALUES['cfi'])}, robust TLI = "
-                f"{index_text(r.tli_robust, beside=GUIDE_VALUES['tli'])}, robust RMSEA = {index_text(r.rmsea_robust, beside=GUIDE_VALUES['rmsea'])}, 90% CI [{unit(rl)}, {unit(rh)}], "
-                f"SRMR = {unit(f.srmr, beside=GUIDE_VALUES['srmr'])}.")
-    return (f"The model fit was {CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {index_text(f.cfi, beside=GUIDE_VALUES['cfi'])}, "
-            f"TLI = {index_text(f.tli, beside=GUIDE_VALUES['tli'])}, RMSEA = {index_text(f.rmsea, beside=GUIDE_VALUES['rmsea'])}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr, beside=GUIDE_VALUES['srmr'])}.")
+                f"({pieces}); robust CFI = {fit_index_text('cfi', r.cfi_robust)}, robust TLI = "
+                f"{fit_index_text('tli', r.tli_robust)}, robust RMSEA = {fit_index_text('rmsea', r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], "
+                f"SRMR = {fit_index_text('srmr', f.srmr)}.")
+    return (f"The model fit was {CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {fit_index_text('cfi', f.cfi)}, "
+            f"TLI = {fit_index_text('tli', f.tli)}, RMSEA = {fit_index_text('rmsea', f.rmsea)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {fit_index_text('srmr', f.srmr)}.")
 
 
 def _method_items(result, factor: str) -> list[str]:
@@ -785,8 +786,8 @@ def methods_paragraph(result) -> str:
     if reliability:
         parts.append(reliability)
     if result.fit.df > 0 and not inadmissible:
-        parts.append("Fit was judged against conventional guide values (e.g., CFI \u2265 .95, RMSEA \u2264 .06, "
-                     "SRMR \u2264 .08; Hu & Bentler, 1999), which are conventions rather than strict criteria.")
+        parts.append(f"Fit was judged against conventional guide values (e.g., {guides_text(READ_FIRST, signs=True)}; "
+                     f"Hu & Bentler, 1999), which are conventions rather than strict criteria.")
     return " ".join(parts)
 
 
@@ -820,11 +821,11 @@ def _fit_figures(result) -> str:
         return "was just-identified (0 df), so its fit could not be tested"
     if r is not None:
         low, high = r.rmsea_robust_ci90
-        return (f"{CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)}, robust CFI = {index_text(r.cfi_robust, beside=GUIDE_VALUES['cfi'])}, "
-                f"robust RMSEA = {index_text(r.rmsea_robust, beside=GUIDE_VALUES['rmsea'])}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr, beside=GUIDE_VALUES['srmr'])}")
+        return (f"{CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)}, robust CFI = {fit_index_text('cfi', r.cfi_robust)}, "
+                f"robust RMSEA = {fit_index_text('rmsea', r.rmsea_robust)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {fit_index_text('srmr', f.srmr)}")
     low, high = f.rmsea_ci90
-    return (f"{CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {index_text(f.cfi, beside=GUIDE_VALUES['cfi'])}, RMSEA = {index_text(f.rmsea, beside=GUIDE_VALUES['rmsea'])}, "
-            f"90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr, beside=GUIDE_VALUES['srmr'])}")
+    return (f"{CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {fit_index_text('cfi', f.cfi)}, RMSEA = {fit_index_text('rmsea', f.rmsea)}, "
+            f"90% CI [{unit(low)}, {unit(high)}], SRMR = {fit_index_text('srmr', f.srmr)}")
 
 
 def _comparison_rows(comparison) -> str:
@@ -1018,6 +1019,8 @@ def invariance_paragraph(result, levels) -> str:
     ladder (what each level holds equal, ``levels`` being the ladder's (level, classes held equal, ...) rows), the
     estimator, how each step was judged (the difference test with its authors and the rule), each step's result
     with what a partial-invariance search freed, and the latent mean differences of the scalar model."""
+    from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
+
     steps = result.steps
     first = steps[0].result
     sizes = "; ".join(f"{_name(g.label)}, n = {g.data.n_obs}" for g in first.groups)
@@ -1047,8 +1050,8 @@ def invariance_paragraph(result, levels) -> str:
     methods = sorted({s.versus_previous.method for s in steps[1:] if s.versus_previous is not None
                       and not s.versus_previous.not_computed}, key=_PREFERRED.index)
     rule = result.rule.description.replace("alpha", unit(result.alpha, 2)).replace(">=", "\u2265")
-    parts.append("The configural model was judged by its own fit against conventional guide values (CFI \u2265 .95, "
-                 "RMSEA \u2264 .06, SRMR \u2264 .08; Hu & Bentler, 1999); each later model by "
+    parts.append("The configural model was judged by its own fit against conventional guide values ("
+                 f"{guides_text(CONFIGURAL_INDICES, signs=True)}; Hu & Bentler, 1999); each later model by "
                  f"{rule}" + (f", the difference test being {_list([m.phrase for m in methods])}" if methods else "")
                  + ".")
     problems = _step_problems(steps)

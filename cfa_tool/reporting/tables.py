@@ -7,7 +7,6 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from cfa_tool.assessment.fit_indices import GUIDE_VALUES
 from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
@@ -15,7 +14,7 @@ from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
 from cfa_tool.language.names import names_text
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
-from cfa_tool.reporting.numbers import index_text, missing, num, p_phrase, p_value, short, unit, word_list
+from cfa_tool.reporting.numbers import fit_index_text, guide_text, missing, num, p_phrase, p_value, unit, word_list
 from cfa_tool.reporting.remedies import Remedy
 
 GUIDE_NOTE = (
@@ -198,7 +197,6 @@ def fit_rows(result) -> list[FitRow]:
     then the unadjusted ones marked (without the test of close fit); the baseline, the likelihood and the count
     of free parameters last."""
     f, r = result.fit, result.robust
-    G = GUIDE_VALUES
     chi = ("Chi-square", f.chi_square, f.df, f.p_value)
     if f.df == 0:  # nothing to test: CFI, TLI and RMSEA are not defined
         plain = [_row("Chi-square test", "0 df: no test", JUST_IDENTIFIED, chi)]
@@ -206,15 +204,15 @@ def fit_rows(result) -> list[FitRow]:
         low, high = f.rmsea_ci90
         plain = [_row("Chi-square test", f"{f.chi_square:.3f} on {f.df} df, p {p_phrase(f.p_value)}",
                       "p > .05 (very sensitive to N)", chi),
-                 _row("CFI", index_text(f.cfi, beside=G["cfi"]), f">= {short(G['cfi'])}", ("CFI", f.cfi)),
-                 _row("TLI", index_text(f.tli, beside=G["tli"]), f">= {short(G['tli'])}", ("TLI", f.tli)),
-                 _row("RMSEA [90% interval]", f"{index_text(f.rmsea, beside=G['rmsea'])} [{unit(low)}, {unit(high)}]",
-                      f"<= {short(G['rmsea'])}",
+                 _row("CFI", fit_index_text("cfi", f.cfi), guide_text("cfi"), ("CFI", f.cfi)),
+                 _row("TLI", fit_index_text("tli", f.tli), guide_text("tli"), ("TLI", f.tli)),
+                 _row("RMSEA [90% interval]", f"{fit_index_text('rmsea', f.rmsea)} [{unit(low)}, {unit(high)}]",
+                      guide_text("rmsea"),
                       ("RMSEA", f.rmsea, None, None, low, high))]
         if not missing(f.rmsea_p_close) and r is None:
             plain.append(_row("  test of close fit (RMSEA <= .05)", f"p {p_phrase(f.rmsea_p_close)}", "",
                               ("Test of close fit (RMSEA <= .05)", None, None, f.rmsea_p_close)))
-    srmr = _row("SRMR", unit(f.srmr, beside=G["srmr"]), f"<= {short(G['srmr'])}", ("SRMR", f.srmr))
+    srmr = _row("SRMR", fit_index_text("srmr", f.srmr), guide_text("srmr"), ("SRMR", f.srmr))
     if r is None:
         rows = plain + [srmr]
     else:
@@ -224,11 +222,11 @@ def fit_rows(result) -> list[FitRow]:
                      f"p {p_phrase(r.p_value_scaled)}", "the test to read for these data",
                      (f"Scaled chi-square ({r.test.label})", r.chi_square_scaled, r.df, r.p_value_scaled)),
                 _row(label, text, guide, *[(name.capitalize(), value) for name, value in r.pieces]),
-                _row("Robust CFI / TLI", f"{index_text(r.cfi_robust, beside=G['cfi'])} / "
-                     f"{index_text(r.tli_robust, beside=G['tli'])}", f">= {short(G['cfi'])}",
+                _row("Robust CFI / TLI", f"{fit_index_text('cfi', r.cfi_robust)} / {fit_index_text('tli', r.tli_robust)}",
+                     guide_text("cfi"),
                      ("Robust CFI", r.cfi_robust), ("Robust TLI", r.tli_robust)),
-                _row("Robust RMSEA [90% interval]", f"{index_text(r.rmsea_robust, beside=G['rmsea'])} [{unit(rlow)}, "
-                     f"{unit(rhigh)}]", f"<= {short(G['rmsea'])}", ("Robust RMSEA", r.rmsea_robust, None, None, rlow, rhigh)),
+                _row("Robust RMSEA [90% interval]", f"{fit_index_text('rmsea', r.rmsea_robust)} [{unit(rlow)}, "
+                     f"{unit(rhigh)}]", guide_text("rmsea"), ("Robust RMSEA", r.rmsea_robust, None, None, rlow, rhigh)),
                 srmr] + [row.unadjusted() for row in plain if f.df > 0]
     rows.append(_row("Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", "",
                      ("Baseline (independence) chi-square", f.baseline_chi_square, f.baseline_df)))
