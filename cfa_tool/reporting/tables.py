@@ -14,7 +14,8 @@ from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
 from cfa_tool.language.names import names_text
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
-from cfa_tool.reporting.numbers import fit_index_text, guide_text, missing, num, p_phrase, p_value, unit, word_list
+from cfa_tool.reporting.numbers import (fit_index_text, guide_text, missing, num, p_phrase, p_value, short, unit,
+                                        word_list)
 from cfa_tool.reporting.remedies import Remedy
 
 GUIDE_NOTE = (
@@ -713,7 +714,10 @@ def _all_if_unusable(result, body) -> tuple[int, ...]:
 
 def distinct_table(result, group: int = 0) -> ReportTable | None:
     """Are the factors distinct: per pair of trait factors their correlation (with its interval when the
-    factors are scaled by their variances), the heterotrait-monotrait ratio and the Fornell-Larcker comparison."""
+    factors are scaled by their variances), the heterotrait-monotrait ratio and the Fornell-Larcker comparison.
+    Left out, with a note: a bifactor model's general factor with its specific factors, and pairs whose correlation
+    the model fixes (at any value: 'uncorrelated', or a covariance fixed at 0 or between factors of fixed
+    variances), which the data cannot show to be distinct or not."""
     g = result.groups[group]
     traits = {r.factor: r for r in g.reliability if r.average_variance_extracted is not None}
     htmt = {(h.first, h.second): h for h in g.htmt}
@@ -723,8 +727,9 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
     for r in result.estimates:
         if r.kind == "factor_covariance" and r.group == g.label:
             correlations[frozenset(r.variables)] = r
-    unit_variance = {r.variables[0] for r in result.estimates
-                     if r.kind == "factor_variance" and r.group == g.label and not r.free and r.estimate == 1.0}
+    fixed_variance = {r.variables[0]: r.estimate for r in result.estimates
+                      if r.kind == "factor_variance" and r.group == g.label and not r.free}
+    unit_variance = {f for f, value in fixed_variance.items() if value == 1.0}
     body, reasons, numbers = [], [], []
     names = list(traits)
     parameters_are_correlations = not higher_order(result)  # otherwise the factors' correlations are implied ones
@@ -735,9 +740,11 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
                 nested.append((a, b))
                 continue
             row = correlations.get(frozenset((a, b)))
-            if parameters_are_correlations and (row is None or not row.free):  # 'uncorrelated' leaves none
-                fixed.append((a, b))
-            elif row is not None:
+            if parameters_are_correlations and (row is None or (not row.free and (
+                    row.estimate == 0 or {a, b} <= set(fixed_variance)))):  # 'uncorrelated' leaves no row
+                fixed.append((a, b, 0.0 if row is None else row.standardized))
+                continue
+            if row is not None:
                 other_scale |= {a, b} - unit_variance
             implied = implied_factor_correlation(result, group, a, b)
             r = implied if implied is not None else (row.standardized if row is not None else 0.0)
@@ -764,7 +771,7 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
     if not any(row[3] for row in body):  # no interval to show (fixed correlations, or factors scaled otherwise)
         columns.pop(3)
         body = [row[:3] + row[4:] for row in body]
-        note += " No interval of r is shown: " + _no_interval_reasons(fixed, other_scale, not parameters_are_correlations)
+        note += " No interval of r is shown: " + _no_interval_reasons(other_scale, not parameters_are_correlations)
     else:
         note += (" The interval of a correlation is shown when both factors are scaled by their variances (then their "
                  "covariance is the correlation).")
@@ -774,6 +781,13 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
         note += (f" Not compared: {word_list([f'{a} with {b}' for a, b in nested])}. A general factor and its specific "
                  f"factors (a bifactor model) measure the same items, the specific factors what the items share beyond "
                  f"the general factor, so whether they are distinct is not a question these comparisons can answer.")
+    if fixed:
+        values = [short(v) for v in sorted({round(r, 6) for _, _, r in fixed})]
+        many = len(fixed) > 1
+        note += (f" Left out: {word_list([f'{a} with {b}' for a, b, _ in fixed])}, whose correlation"
+                 f"{'s' if many else ''} the model fixes (at {word_list(values).replace(' and ', ' or ')}): a "
+                 f"correlation the model sets is not estimated from the data, so it cannot show whether two factors "
+                 f"are distinct.")
     if not body:
         return None
     return _table(f"distinct_{group}", "Are the factors distinct?", columns, body, _unusable(result) + note,
@@ -782,15 +796,11 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
                            "sqrt(AVE) > |r|"], numbers))
 
 
-def _no_interval_reasons(fixed: list[tuple[str, str]], other_scale: set[str], implied: bool) -> str:
-    """Why no correlation of the distinct table has an interval: the model fixes them, a higher-order factor implies
-    them, or some factors are scaled otherwise than by their variances (the only case the advice to scale by
-    variance fits, so that it never asks for what the model already does)."""
+def _no_interval_reasons(other_scale: set[str], implied: bool) -> str:
+    """Why no correlation of the distinct table has an interval: a higher-order factor implies them, or some factors
+    are scaled otherwise than by their variances (the only case the advice to scale by variance fits, so that it
+    never asks for what the model already does); the correlations the model fixes are left out of the table."""
     parts = []
-    if fixed:
-        parts.append(f"the correlation{'s' if len(fixed) > 1 else ''} of "
-                     f"{word_list([f'{a} and {b}' for a, b in fixed])} {'are' if len(fixed) > 1 else 'is'} fixed by the "
-                     f"model, not estimated")
     if implied:
         parts.append("the correlations of factors below a higher-order factor are implied by it, not parameters")
     elif other_scale:

@@ -13,7 +13,7 @@ import pytest
 import cfa_tool
 from cfa_tool.assessment.reliability import BifactorPart
 from cfa_tool.reporting.paragraph import comparison_paragraph, methods_paragraph
-from cfa_tool.reporting.tables import reliability_table
+from cfa_tool.reporting.tables import distinct_table, reliability_table
 from cfa_tool.resources import resource_dir
 
 SPECIFIC = ("punctuality", "comfort", "courtesy")
@@ -83,3 +83,48 @@ def test_a_comparison_without_reliability_rows_reads_the_same_structure():
     text = _flat(comparison_paragraph(comparison))
     assert "a general factor (experience) on all 12 items and three specific factors" in text
     assert "as a method factor does" not in text
+
+
+# ---------------------------------------------------------------- the distinct-factors table
+
+def test_pairs_whose_correlation_the_model_fixes_are_left_out_with_a_note(fits):
+    """A correlation the model fixes (at 0 in the bundled bifactor model) is not estimated, so 'sqrt(AVE) > |r|'
+    holds for it by construction: such pairs are left out and the note says which and why."""
+    assert distinct_table(fits["uncorrelated"]) is None and distinct_table(fits["fix"]) is None  # nothing is left
+    table = distinct_table(fits["correlated"])  # the specific factors' correlations are estimated: compared
+    assert [tuple(row[:2]) for row in table.rows] == [("punctuality", "comfort"), ("punctuality", "courtesy"),
+                                                      ("comfort", "courtesy")]
+    note = _flat(table.note)
+    assert "Not compared: experience with punctuality, experience with comfort, and experience with courtesy." in note
+    assert "Left out" not in note
+
+
+@pytest.mark.parametrize("line, scale, left_out, at", [
+    ("uncorrelated comfort, courtesy", "", ("comfort", "courtesy"), "0"),
+    ("fix covariance(comfort, courtesy) = 0", "", ("comfort", "courtesy"), "0"),
+    # both factors of fixed variance: the covariance fixed at .3 fixes their correlation at .3
+    ("fix covariance(punctuality, comfort) = 0.3", "scale latent by variance\n", ("punctuality", "comfort"), ".3"),
+])
+def test_any_fixed_correlation_is_left_out(line, scale, left_out, at):
+    data = resource_dir("demo") / "rider_survey.csv"
+    text = (resource_dir("models") / "rider_three_factors.cfa").read_text() + scale + line + "\n"
+    table = distinct_table(cfa_tool.fit(text, data))
+    pairs = [tuple(row[:2]) for row in table.rows]
+    assert left_out not in pairs and len(pairs) == 2
+    a, b = left_out
+    assert (f"Left out: {a} with {b}, whose correlation the model fixes (at {at}): a correlation the model sets is not "
+            f"estimated from the data") in _flat(table.note)
+    assert "fixed by the model, not estimated" not in _flat(table.note)  # no longer a reason for a missing interval
+
+
+def test_a_fixed_covariance_of_factors_with_free_variances_leaves_their_correlation_estimated():
+    """Marker scaling: a covariance fixed at .1 with the factors' variances estimated fixes no correlation
+    (r = .1 / sqrt(var_a var_b)), so the pair stays in the table."""
+    data = resource_dir("demo") / "rider_survey.csv"
+    text = (resource_dir("models") / "rider_three_factors.cfa").read_text() + "fix covariance(punctuality, comfort) = 0.1\n"
+    result = cfa_tool.fit(text, data)
+    table = distinct_table(result)
+    row = next(r for r in table.rows if tuple(r[:2]) == ("punctuality", "comfort"))
+    variances = {r.variables[0]: r.estimate for r in result.estimates if r.kind == "factor_variance"}
+    assert float("0" + row[2]) == pytest.approx(0.1 / (variances["punctuality"] * variances["comfort"]) ** 0.5, abs=0.005)
+    assert "Left out" not in _flat(table.note)
