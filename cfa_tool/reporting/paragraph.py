@@ -14,7 +14,7 @@ all of that from the result's typed fields, never from a generic template.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 
 from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
@@ -167,10 +167,9 @@ def _shape(result, d) -> _Shape:
     confirmatory = {f: x for f, x in items.items() if f not in blocks}
     declared = frozenset(d.method_factors)
     general = bifactor_parts(confirmatory, declared, zero)
-    shape = _Shape(items, frozenset(zero), general, ())
-    nested = shape.nested
+    nested = set(general) | {f for specific in general.values() for f in specific}
     unnamed = tuple(f for f in cross_cutting_factors(confirmatory, declared) if f not in declared and f not in nested)
-    return replace(shape, unnamed=unnamed)
+    return _Shape(items, frozenset(zero), general, unnamed)
 
 
 def _bifactor_structure(shape: _Shape, d, traits: list[str]) -> str:
