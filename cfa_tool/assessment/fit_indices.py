@@ -29,9 +29,35 @@ import numpy as np
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import log_det_pd, spd_inverse
 
+
+@dataclass(frozen=True)
+class FitGuide:
+    """A fit index's guide value and the side of it on which a model is read as fitting."""
+
+    value: float
+    higher_fits: bool  # True: a value at least the guide fits (CFI, TLI); False: at most the guide (RMSEA, SRMR)
+
+    def met_by(self, value: float) -> bool:
+        """Whether ``value`` lies on the fitting side of the guide (the guide itself included)."""
+        return value >= self.value if self.higher_fits else value <= self.value
+
+    @property
+    def relation(self) -> str:
+        """How a fitting value stands to the guide: '>=' or '<='."""
+        return ">=" if self.higher_fits else "<="
+
+    @property
+    def missed_side(self) -> str:
+        """Where a value that misses the guide lies: 'below' or 'above'."""
+        return "below" if self.higher_fits else "above"
+
+
 #: The guide values the reports print beside the indices and the configural step of an invariance test is judged by
-#: (Hu & Bentler 1999; common practice, not laws): CFI and TLI at least these, RMSEA and SRMR at most these.
-GUIDE_VALUES = {"cfi": 0.95, "tli": 0.95, "rmsea": 0.06, "srmr": 0.08}
+#: (Hu & Bentler 1999, as recalled; common practice, not laws): CFI and TLI at least .95, RMSEA at most .06, SRMR at
+#: most .08.  Declared here once with their direction; reporting.numbers.fit_index_text prints a value beside its guide.
+FIT_GUIDES = {"cfi": FitGuide(0.95, True), "tli": FitGuide(0.95, True), "rmsea": FitGuide(0.06, False),
+              "srmr": FitGuide(0.08, False)}
+
 #: Beyond these a model's fit is called poor and the report cautions first (common practice, conventions, not laws):
 #: RMSEA above .10 (MacCallum, Browne & Sugawara 1996: .08-.10 mediocre, above .10 poor), CFI below .90 (the older
 #: criterion of Bentler & Bonett 1980, recalled from memory).

@@ -64,6 +64,21 @@ def bifactor_parts(loadings: dict[str, set[str]], declared: frozenset[str],
     return out
 
 
+#: a factor correlation at most this small in size is zero: one the model fixes at zero or implies to be, rounding aside
+ZERO_CORRELATION = 1e-10
+
+
+def uncorrelated_pairs(latent: tuple[str, ...], covariance: np.ndarray) -> set[frozenset[str]]:
+    """The pairs of factors whose correlation is zero in ``covariance``, the factors' (model-implied, total)
+    covariance or correlation matrix in the order of ``latent``: the pairs :func:`bifactor_parts` reads as held
+    uncorrelated, whether by an 'uncorrelated' statement, a fixed covariance of 0 or the structure above them."""
+    sd = np.sqrt(np.maximum(covariance.diagonal(), 1e-300))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        zero = np.abs(np.nan_to_num(covariance / (sd[:, None] * sd), nan=1.0)) <= ZERO_CORRELATION
+    first, second = np.nonzero(np.triu(zero, 1))
+    return {frozenset((latent[a], latent[b])) for a, b in zip(first.tolist(), second.tolist())}
+
+
 def weak_factor_problems(estimates, latent: tuple[str, ...], observed: tuple[str, ...], groups,
                          declared: frozenset[str], leave_out: frozenset[str] = frozenset()) -> list[Problem]:
     """A caution for every method or bifactor-like factor (see :func:`cross_cutting_factors`) whose standardized

@@ -49,7 +49,7 @@ from enum import Enum
 
 import numpy as np
 
-from cfa_tool.assessment.method_factors import bifactor_parts
+from cfa_tool.assessment.method_factors import bifactor_parts, uncorrelated_pairs
 from cfa_tool.language.names import reference_text
 from cfa_tool.model.implied import ModelMatrices
 
@@ -321,9 +321,7 @@ def _bifactor(direct: np.ndarray, corr_lat: np.ndarray, higher: np.ndarray, obse
     if not (np.count_nonzero(direct[:, ~np.asarray(higher, dtype=bool)], axis=1) > 1).any():
         return set(), {}  # no item on two factors: no bifactor structure (the usual case, at once)
     loadings = {latent[j]: {observed[i] for i in np.nonzero(direct[:, j])[0]} for j in range(m) if not higher[j]}
-    zero = np.abs(np.nan_to_num(corr_lat, nan=1.0)) <= 1e-10
-    uncorrelated = {frozenset((latent[a], latent[b])) for a in range(m) for b in range(a + 1, m) if zero[a, b]}
-    parts = bifactor_parts(loadings, not_traits, uncorrelated)
+    parts = bifactor_parts(loadings, not_traits, uncorrelated_pairs(latent, corr_lat))
     shared: dict[str, tuple[str, ...]] = dict(parts)
     for general, specific in parts.items():
         for f in specific:

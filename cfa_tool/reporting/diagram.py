@@ -56,8 +56,9 @@ MARGIN = 30.0
 # units high, and a band of items is at most MAX_WIDTH units wide, so that a band set across the widest text area a
 # report gives it, PRINT_WIDTH inches (the Word report's landscape page: letter paper, 1.25 inch side margins),
 # prints its smallest text at SMALLEST_TEXT * 72 * PRINT_WIDTH / MAX_WIDTH >= MIN_FIGURE_TEXT points (1 pt = 1/72
-# inch).  The Word report cuts a drawing of several bands into strips between them (reporting.picture.svg_strips);
-# the HTML report shows it at one unit to a pixel up to its width (at least 900 pixels wide), so its smallest text
+# inch).  The Word report sets a drawing of several bands whole on one page when its text prints at least
+# reporting.docx_report.ONE_PAGE_TEXT there, and cuts it into strips between the bands otherwise (where each prints
+# at MIN_FIGURE_TEXT or more; reporting.picture.svg_strips); the HTML report shows it at one unit to a pixel up to its width (at least 900 pixels wide), so its smallest text
 # is at least 12 * 900 / MAX_WIDTH, about 10 pixels, at normal zoom.
 MIN_FIGURE_TEXT = 7.0  # points: journals' artwork guides ask for about 6 to 8 pt (common practice)
 SMALLEST_TEXT = 12  # units: the size of the values, the lists and the key

@@ -1,7 +1,8 @@
 """The report as a Word document (python-docx), laid out for a manuscript in the style of the APA
 Publication Manual, 7th edition: numbered tables with an italic title, horizontal rules only, notes under
-the table; the methods paragraph; the path diagram as a numbered figure (on a landscape page, or in strips cut
-between its bands, when its labels would print below 7 pt across a portrait page); the cautions.  The problems of
+the table; the methods paragraph; the path diagram as a numbered figure on one page (a landscape one when its labels
+print larger there; in strips cut between its bands only when even whole on one page they would print below 5 pt);
+the cautions.  The problems of
 the solution come first, as in every view.  The tables are the report's own (one report model)."""
 
 from __future__ import annotations
@@ -118,6 +119,10 @@ def _room(document) -> float:
 
 
 LANDSCAPE_GAIN = 1.1  # a figure goes on a landscape page when it prints at least this much larger there
+# A drawing prints whole on one page, rather than in strips on following pages, when its smallest text reaches this
+# size there: below MIN_FIGURE_TEXT, but a size some journals' artwork guides still accept as their least (5 pt;
+# recalled from memory), and a journal prints a figure on one page, never cut across two with the second half empty.
+ONE_PAGE_TEXT = 5.0  # points
 # a line of the body text in points: 12 pt type at the default template's line spacing of 1.15 (w:line 276/240),
 # a line of Times being about 1.15 times its size (Times New Roman's ascent plus descent, recalled from memory);
 # PARAGRAPH_GAP is the space after a paragraph (the template's w:after 200 twentieths of a point)
@@ -140,40 +145,57 @@ def _figure_room(note: str, across: float) -> float:
     return points / 72.0
 
 
-def _figure_pieces(document, svg: str, note: str = "") -> tuple[bool, list[str]]:
-    """How a figure is set: (on a landscape page, its drawing whole or in strips).  The first of: whole on a
-    portrait page, whole on a landscape page, in strips on portrait pages, in strips on landscape pages, whose
-    smallest text prints at least ``MIN_FIGURE_TEXT``; the strips are cut between the bands of a diagram of many
-    items (picture.svg_strips), one under the other on following pages.  When none reaches that size, the one that
-    prints largest, if at least ``LANDSCAPE_GAIN`` times larger than whole on the portrait page.  The drawing is the
-    same in every case.  ``note``: the figure's note, on the page of the drawing (_figure_room)."""
+def _figure_layout(document, svg: str, note: str = "",
+                   heading: bool = False) -> tuple[bool, list[str], tuple[float, float]]:
+    """How a figure is set, worked out once: (on a landscape page, its drawing whole or in strips, the room for each
+    piece in inches, width by height).  The room is the page's text area less the caption, ``note``
+    (_figure_room) and, with ``heading``, the figures' heading on the first figure's page, all taken before the
+    layout is chosen.  The first of: whole on a portrait page, whole on a landscape page, whose smallest text prints
+    at least ``MIN_FIGURE_TEXT``; whole on one page, in the orientation where it prints larger, when its smallest
+    text reaches ``ONE_PAGE_TEXT`` there; in strips on portrait pages, in strips on landscape pages, at
+    ``MIN_FIGURE_TEXT`` or more; the strips are cut between the bands of a diagram of many items
+    (picture.svg_strips), one under the other on following pages.  When none reaches that size, the one that prints
+    largest, if at least ``LANDSCAPE_GAIN`` times larger than whole on the portrait page.  The drawing is the same in
+    every case."""
     width, height = svg_size(svg)
-    areas = _figure_areas(document, note)
+    areas = _figure_areas(document, note, heading)
     choices = []  # (inches per unit of the drawing, landscape, pieces), in the order of preference
     for pieces_of in (lambda w, h: [svg], lambda w, h: svg_strips(svg, h * width / w)):
         for landscape in (False, True):
             w, h = areas[landscape]
             pieces = pieces_of(w, h)
             choices.append((min(w / width, h / max(svg_size(piece)[1] for piece in pieces)), landscape, pieces))
-    for scale, landscape, pieces in choices:
-        smallest = smallest_text(svg, scale * width)
-        if smallest is None or smallest >= MIN_FIGURE_TEXT:
-            return landscape, pieces
+
+    def prints(choice, size: float) -> bool:  # its smallest text at least ``size`` points (or no text)
+        smallest = smallest_text(svg, choice[0] * width)
+        return smallest is None or smallest >= size
+
+    whole = max(choices[:2], key=lambda c: c[0])  # whole on one page, in the orientation where it prints larger
+    ranked = [(c, MIN_FIGURE_TEXT) for c in choices[:2]] + [(whole, ONE_PAGE_TEXT)] + \
+        [(c, MIN_FIGURE_TEXT) for c in choices[2:]]
+    for choice, size in ranked:
+        if prints(choice, size):
+            _, landscape, pieces = choice
+            return landscape, pieces, areas[landscape]
     scale, landscape, pieces = max(choices, key=lambda c: c[0])
-    return (landscape, pieces) if scale > LANDSCAPE_GAIN * choices[0][0] else (False, [svg])
+    if scale <= LANDSCAPE_GAIN * choices[0][0]:
+        landscape, pieces = False, [svg]
+    return landscape, pieces, areas[landscape]
 
 
-def _figure_areas(document, note: str = "") -> tuple[tuple[float, float], tuple[float, float]]:
+def _figure_areas(document, note: str = "", heading: bool = False) -> tuple[tuple[float, float], tuple[float, float]]:
     """The room for a figure's drawing, width by height in inches, on a portrait and on a landscape page of
-    ``document``'s paper and margins: the text area less the room of its caption and ``note`` (_figure_room).  A
-    drawing set to the narrower width of a portrait page shrinks its labels with it, so a wide drawing (a model of
-    many items) prints larger across a landscape page."""
+    ``document``'s paper and margins: the text area less the room of its caption and ``note`` (_figure_room) and,
+    with ``heading``, of the figures' heading (HEADING_ROOM).  A drawing set to the narrower width of a portrait
+    page shrinks its labels with it, so a wide drawing (a model of many items) prints larger across a landscape
+    page."""
     section = document.sections[-1]
     long_side, short_side = max(section.page_width, section.page_height), min(section.page_width, section.page_height)
     across, down = section.left_margin + section.right_margin, section.top_margin + section.bottom_margin
     areas = ((Emu(short_side - across).inches, Emu(long_side - down).inches),
              (Emu(long_side - across).inches, Emu(short_side - down).inches))
-    return tuple((w, h - _figure_room(note, w)) for w, h in areas)
+    above = HEADING_ROOM / 72.0 if heading else 0.0
+    return tuple((w, h - _figure_room(note, w) - above) for w, h in areas)
 
 
 def _set_orientation(document, landscape: bool) -> None:
@@ -356,14 +378,12 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
             document.add_paragraph(NO_PICTURE)
         else:
             for number, figure in enumerate(report.figures, start=1):
-                wider, pieces = _figure_pieces(document, figure.svg, figure.note)
-                across, down = _figure_areas(document, figure.note)[wider]  # less the caption and the note
+                # the heading on the first figure's page (a landscape page starts after the heading had been left
+                # alone at the foot of the page before it): its room taken before the layout is chosen
+                wider, pieces, area = _figure_layout(document, figure.svg, figure.note, heading=number == 1)
                 _set_orientation(document, wider)  # a wide drawing (many items) on a landscape page: larger labels
-                if number == 1:  # the heading on the first figure's page (a landscape page starts after the heading
-                    # had been left alone at the foot of the page before it), and room for it there
+                if number == 1:
                     document.add_heading(FIGURES, level=2).paragraph_format.keep_with_next = True
-                    down -= HEADING_ROOM / 72.0
-                area = (across, down)
                 for k, piece in enumerate(pieces):
                     _caption(document, f"Figure {number}" + (" (continued)" if k else ""), figure.title)
                     png = svg_to_png(piece, dpi)

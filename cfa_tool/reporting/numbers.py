@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 
+from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.numerics.plain import decimals_beside
 
 
@@ -39,6 +40,26 @@ def index_text(value, digits: int = 3, beside: float | None = None) -> str:
     """A fit index as :func:`unit` prints it, or 'not defined' where its formula has no value (e.g. a TLI whose
     baseline model fits no worse per degree of freedom than the model), never an empty place in a sentence."""
     return "not defined" if missing(value) else unit(value, digits, beside)
+
+
+def fit_index_text(index: str, value, digits: int = 3) -> str:
+    """A fit index's value ('cfi', 'tli', 'rmsea', 'srmr') printed on the side of its guide value it lies on
+    (assessment.fit_indices.FIT_GUIDES; :func:`unit`), or 'not defined' where its formula has no value
+    (:func:`index_text`): the one way every report prints a fit index read against its guide."""
+    return index_text(value, digits, FIT_GUIDES[index].value)
+
+
+def guide_text(index: str, signs: bool = False) -> str:
+    """A fit index's guide as the reports print it: '>= .95', '<= .06' (assessment.fit_indices.FIT_GUIDES);
+    ``signs``: with the mathematical signs ('\u2265 .95'), as a paragraph for a journal writes it."""
+    guide = FIT_GUIDES[index]
+    relation = {">=": "\u2265", "<=": "\u2264"}[guide.relation] if signs else guide.relation
+    return f"{relation} {short(guide.value)}"
+
+
+def guides_text(indices, signs: bool = False) -> str:
+    """Fit indices with their guides: 'CFI >= .95, RMSEA <= .06, SRMR <= .08' (:func:`guide_text`)."""
+    return ", ".join(f"{index.upper()} {guide_text(index, signs)}" for index in indices)
 
 
 def p_value(value) -> str:

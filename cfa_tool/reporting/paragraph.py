@@ -14,12 +14,12 @@ all of that from the result's typed fields, never from a generic template.
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
-from cfa_tool.assessment.fit_indices import GUIDE_VALUES
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
-from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors
+from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
 from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.non_answers import non_answer_clause
 from cfa_tool.data.answer_words import coding_described
@@ -27,10 +27,12 @@ from cfa_tool.exploration.choices import BlockErrors, FactorNaming
 from cfa_tool.language.names import written_name
 from cfa_tool.language.spec import equality_words
 from cfa_tool.model.description import parameter_words
-from cfa_tool.reporting.numbers import index_text, num, p_phrase, signed, unit
+from cfa_tool.reporting.numbers import fit_index_text, guides_text, num, p_phrase, signed, unit
 from cfa_tool.reporting.numbers import word_list as _list
 
 CHI = "\u03c7\u00b2"
+#: the indices whose guides the paragraph names as examples
+READ_FIRST = ("cfi", "rmsea", "srmr")
 WORDS = {1: "one", 2: "two", 3: "three", 4: "four", 5: "five", 6: "six", 7: "seven", 8: "eight", 9: "nine", 10: "ten"}
 
 
@@ -117,66 +119,87 @@ def _test_phrase(test: FitTest) -> str:
 
 
 def _factor_items(result) -> dict[str, set[str]]:
-    """Each factor's items (observed indicators), from the first group's loadings."""
+    """Each factor's items (observed indicators), from the first group's loadings (a loading the model fixes at 0
+    makes no item of the factor)."""
     label = result.groups[0].label if result.groups else None
     out: dict[str, set[str]] = {}
     for r in result.estimates:
-        if r.kind == "loading" and r.variables[1] in result.observed and r.group in (None, label):
+        if (r.kind == "loading" and r.variables[1] in result.observed and r.group in (None, label)
+                and (r.free or r.estimate != 0)):
             out.setdefault(r.variables[0], set()).add(r.variables[1])
     return out
 
 
-def _bifactor(result, d) -> dict[str, tuple[str, ...]]:
-    """The general factors of a bifactor structure with their specific factors (the one rule:
-    assessment.method_factors.bifactor_parts)."""
-    blocks = {f for factors, _, _ in d.exploratory for f in factors}
-    items = {f: x for f, x in _factor_items(result).items() if f not in blocks}
-    return bifactor_parts(items, frozenset(d.method_factors), {frozenset(p) for p in d.uncorrelated})
+@dataclass(frozen=True)
+class _Shape:
+    """The fitted model's departures from simple structure among its factors, read once from the result: each
+    factor's items, the pairs of factors whose correlation is zero (held by 'uncorrelated', a covariance fixed at
+    0, or the structure above them: assessment.method_factors.uncorrelated_pairs on the first group's factor
+    covariances), the general factors of a bifactor structure with their specific factors (the one rule,
+    assessment.method_factors.bifactor_parts, on the same loadings and zero correlations as the reliability rows'
+    parts), and the undeclared factors of a method factor's shape."""
+
+    items: dict[str, set[str]]
+    uncorrelated: frozenset[frozenset[str]]
+    general: dict[str, tuple[str, ...]]
+    unnamed: tuple[str, ...]
+
+    @property
+    def nested(self) -> set[str]:
+        """The factors of the bifactor structures, general and specific."""
+        return set(self.general) | {f for specific in self.general.values() for f in specific}
+
+    def apart(self, factors) -> bool:
+        """Whether every two of ``factors`` are uncorrelated."""
+        factors = list(factors)
+        return all(frozenset((a, b)) in self.uncorrelated for i, a in enumerate(factors) for b in factors[i + 1:])
 
 
-def _unnamed_methods(result, d) -> list[str]:
-    """Factors not declared method factors whose every item loads on another factor too, other than a bifactor
-    model's (assessment.method_factors.cross_cutting_factors, the one rule): the shape of a method factor."""
-    blocks = {f for factors, _, _ in d.exploratory for f in factors}
-    items = {f: x for f, x in _factor_items(result).items() if f not in blocks}
-    parts = _bifactor(result, d)
-    nested = set(parts) | {f for specific in parts.values() for f in specific}
-    return [f for f in cross_cutting_factors(items, frozenset(d.method_factors))
-            if f not in d.method_factors and f not in nested]
-
-
-def _bifactor_structure(result, d, parts: dict[str, tuple[str, ...]], traits: list[str]) -> str:
-    """'a bifactor structure (...): a general factor (g) on 15 items and three specific factors (...), ...'"""
-    held = {frozenset(p) for p in d.uncorrelated}
+def _shape(result, d) -> _Shape:
+    """The model's :class:`_Shape`, from the result's loadings and factor covariances and its description ``d``."""
     items = _factor_items(result)
+    g = result.groups[0] if result.groups else None
+    if g is not None and g.latent_covariance is not None:
+        zero = uncorrelated_pairs(tuple(result.latent), g.latent_covariance)
+    else:  # a result without its factors' covariance matrix: the pairs the model file holds uncorrelated
+        zero = {frozenset(p) for p in d.uncorrelated}
+    blocks = {f for factors, _, _ in d.exploratory for f in factors}
+    confirmatory = {f: x for f, x in items.items() if f not in blocks}
+    declared = frozenset(d.method_factors)
+    general = bifactor_parts(confirmatory, declared, zero)
+    nested = set(general) | {f for specific in general.values() for f in specific}
+    unnamed = tuple(f for f in cross_cutting_factors(confirmatory, declared) if f not in declared and f not in nested)
+    return _Shape(items, frozenset(zero), general, unnamed)
+
+
+def _bifactor_structure(shape: _Shape, d, traits: list[str]) -> str:
+    """'a bifactor structure (...): a general factor (g) on 15 items and three specific factors (...), ...'"""
     phrases = []
-    for general, specific in parts.items():
-        apart = all(frozenset((a, b)) in held for i, a in enumerate(specific) for b in specific[i + 1:])
-        n = len(items[general])
+    for general, specific in shape.general.items():
+        n = len(shape.items[general])
         phrases.append(f"a general factor ({_name(general)}) on {'all ' if n == len(d.indicators) else ''}"
                        f"{_count(n, 'item')} and {_count(len(specific), 'specific factor')} ({_names(specific)}), "
                        f"each on its own part of those items and uncorrelated with the general factor"
-                       f"{' and with each other' if apart else ''}")
-    nested = set(parts) | {f for specific in parts.values() for f in specific}
-    rest = [f for f in traits if f not in nested]
+                       f"{' and with each other' if shape.apart(specific) else ''}")
+    rest = [f for f in traits if f not in shape.nested]
     text = f"a bifactor structure (Holzinger & Swineford, 1937; Reise, 2012), {_list(phrases)}"
     if rest:
         text += f", and {_count(len(rest), 'other factor')} ({_names(rest)})"
     return text + ","
 
 
-def _structure(result, d) -> str:
+def _structure(d, shape: _Shape) -> str:
     methods = set(d.method_factors)
     traits = [f for f in d.first_order if f not in methods]
     n_first = len(traits)
-    parts = _bifactor(result, d)
+    parts = shape.general
     noun = "trait factor" if methods else "factor"
-    held = {frozenset(p) for p in d.uncorrelated}
+    held = shape.uncorrelated
     pairs = [frozenset((a, b)) for i, a in enumerate(traits) for b in traits[i + 1:]]
     if n_first == 0:
         factors = ""
     elif parts:
-        factors = _bifactor_structure(result, d, parts, traits)
+        factors = _bifactor_structure(shape, d, traits)
     elif n_first == 1:
         factors = f"one {noun} ({_name(traits[0])})"
     else:
@@ -313,13 +336,13 @@ def _block_sentences(result, d) -> str:
     return " ".join(out)
 
 
-def _departures(d, general: dict[str, tuple[str, ...]] | None = None, unnamed: list[str] | None = None) -> str:
-    """The departures from simple structure; ``general``: a bifactor model's general factors with their specific
-    factors, and ``unnamed``: undeclared factors of a method factor's shape (:func:`_unnamed_methods`), whose loadings
-    are no cross-loadings and whose zero correlations the structure's sentence states."""
+def _departures(d, shape: _Shape) -> str:
+    """The departures from simple structure; ``shape``: the model's factors as the fit read them (:func:`_shape`):
+    a bifactor model's general factors with their specific factors and the undeclared factors of a method factor's
+    shape, whose loadings are no cross-loadings, and the zero correlations the structure's sentence states."""
     parts = []
-    general = general or {}
-    methods = set(d.method_factors) | set(general) | set(unnamed or ())
+    general, unnamed = shape.general, shape.unnamed
+    methods = set(d.method_factors) | set(general) | set(unnamed)
     for item, factors in d.cross_loadings:
         if sum(f not in methods for f in factors) > 1:  # a loading on a method factor is not a cross-loading
             parts.append(f"a cross-loading of {_name(item)} (on {_names([f for f in factors if f not in methods])})")
@@ -337,19 +360,17 @@ def _departures(d, general: dict[str, tuple[str, ...]] | None = None, unnamed: l
         sentences.append(f"The {'factors' if many else 'factor'} {_names(d.method_factors)} "
                          f"{'stand' if many else 'stands'} for a way of answering, not a trait: "
                          f"{'they get' if many else 'it gets'} no reliability or discriminant-validity coefficients.")
-    for factor in unnamed or ():
+    for factor in unnamed:
         items = [x for x, factors in d.cross_loadings if factor in factors]
         sentences.append(f"The factor {_name(factor)} loads only on items that load on other factors too "
                          f"({_names(items)}), as a method factor does (what items share in the way they are "
                          f"answered, such as their wording; Marsh, 1996); it was not declared a method factor, so it "
                          f"was treated as a trait.")
     stated = set()  # the zero correlations the bifactor structure's sentence states
-    held = {frozenset(p) for p in d.uncorrelated}
     for g, specific in general.items():
         stated |= {frozenset((g, f)) for f in specific}
-        among = {frozenset((a, b)) for i, a in enumerate(specific) for b in specific[i + 1:]}
-        if among <= held:
-            stated |= among
+        if shape.apart(specific):
+            stated |= {frozenset((a, b)) for i, a in enumerate(specific) for b in specific[i + 1:]}
     uncorrelated = [p for p in d.uncorrelated if frozenset(p) not in stated]
     if uncorrelated:
         pairs = _list([f"{_name(a)} and {_name(b)}" for a, b in uncorrelated])
@@ -357,8 +378,11 @@ def _departures(d, general: dict[str, tuple[str, ...]] | None = None, unnamed: l
                          f"{'were' if len(uncorrelated) > 1 else 'was'} fixed at zero.")
     for group in d.equal:
         sentences.append(f"{_capital(_list([_parameter(r, d) for r in group]))} were constrained to be equal.")
-    if d.fixed:
-        sentences.append(_capital(_list([f"{_parameter(r, d)} was fixed at {value:g}" for r, value in d.fixed])) + ".")
+    # a factor covariance fixed at 0 that the structure's sentence states already is not said again
+    fixed = [(r, value) for r, value in d.fixed
+             if not (r[0] == "covariance" and r[2] is None and value == 0 and frozenset(r[1]) in stated)]
+    if fixed:
+        sentences.append(_capital(_list([f"{_parameter(r, d)} was fixed at {value:g}" for r, value in fixed])) + ".")
     if d.bounds:
         def bound(ref, lo, hi):
             if lo is not None and hi is not None:
@@ -520,11 +544,11 @@ def _fit_sentence(result) -> str:
         rl, rh = r.rmsea_robust_ci90
         pieces = ", ".join(f"{name} {value:.3f}" for name, value in r.pieces)
         return (f"The {_test_phrase(r.test)} gave {CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)} "
-                f"({pieces}); robust CFI = {index_text(r.cfi_robust, beside=GUIDE_VALUES['cfi'])}, robust TLI = "
-                f"{index_text(r.tli_robust, beside=GUIDE_VALUES['tli'])}, robust RMSEA = {index_text(r.rmsea_robust, beside=GUIDE_VALUES['rmsea'])}, 90% CI [{unit(rl)}, {unit(rh)}], "
-                f"SRMR = {unit(f.srmr, beside=GUIDE_VALUES['srmr'])}.")
-    return (f"The model fit was {CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {index_text(f.cfi, beside=GUIDE_VALUES['cfi'])}, "
-            f"TLI = {index_text(f.tli, beside=GUIDE_VALUES['tli'])}, RMSEA = {index_text(f.rmsea, beside=GUIDE_VALUES['rmsea'])}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr, beside=GUIDE_VALUES['srmr'])}.")
+                f"({pieces}); robust CFI = {fit_index_text('cfi', r.cfi_robust)}, robust TLI = "
+                f"{fit_index_text('tli', r.tli_robust)}, robust RMSEA = {fit_index_text('rmsea', r.rmsea_robust)}, 90% CI [{unit(rl)}, {unit(rh)}], "
+                f"SRMR = {fit_index_text('srmr', f.srmr)}.")
+    return (f"The model fit was {CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {fit_index_text('cfi', f.cfi)}, "
+            f"TLI = {fit_index_text('tli', f.tli)}, RMSEA = {fit_index_text('rmsea', f.rmsea)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {fit_index_text('srmr', f.srmr)}.")
 
 
 def _method_items(result, factor: str) -> list[str]:
@@ -700,12 +724,13 @@ def methods_paragraph(result) -> str:
               + "; ".join(f"{_name(g.label)}, n = {g.data.n_obs}" for g in result.groups) + ")" if result.multigroup else "")
     parts = []
     if d is not None:
-        parts.append(f"A confirmatory factor analysis with {_structure(result, d)} was estimated{groups} by "
+        shape = _shape(result, d)
+        parts.append(f"A confirmatory factor analysis with {_structure(d, shape)} was estimated{groups} by "
                      f"{_estimator_phrase(result)} ({_sample_phrase(result)}).")
         parts += _scale_sentences(d, result.problems)
         if d.exploratory:
             parts.append(_block_sentences(result, d))
-        departures = _departures(d, _bifactor(result, d), _unnamed_methods(result, d))
+        departures = _departures(d, shape)
         if departures:
             parts.append(departures)
         if d.invariant:
@@ -770,7 +795,8 @@ def methods_paragraph(result) -> str:
         what = ("The standardized loadings of the factors on the higher-order factor" if len(higher) == 1 else
                 "The standardized loadings of the first-order factors on the higher-order factors")
         parts.append(f"{what} {_range(second)}.")
-    correlated = [r for r in result.estimates if r.kind == "factor_covariance"]
+    # the estimated correlations: one the model fixes (at 0 in a bifactor model) the methods part states
+    correlated = [r for r in result.estimates if r.kind == "factor_covariance" and r.free]
     corr = [r.standardized for r in correlated]
     if corr and not result.multigroup:
         which = " of the confirmatory factors" if blocks else ""
@@ -785,8 +811,8 @@ def methods_paragraph(result) -> str:
     if reliability:
         parts.append(reliability)
     if result.fit.df > 0 and not inadmissible:
-        parts.append("Fit was judged against conventional guide values (e.g., CFI \u2265 .95, RMSEA \u2264 .06, "
-                     "SRMR \u2264 .08; Hu & Bentler, 1999), which are conventions rather than strict criteria.")
+        parts.append(f"Fit was judged against conventional guide values (e.g., {guides_text(READ_FIRST, signs=True)}; "
+                     f"Hu & Bentler, 1999), which are conventions rather than strict criteria.")
     return " ".join(parts)
 
 
@@ -800,8 +826,9 @@ def _model_sentences(name: str, result) -> str:
     d = result.description
     if d is None:
         return f"{name} had {_count(len(result.observed), 'indicator')}."
-    parts = [f"{name} had {_structure(result, d).rstrip(',')}."] + _scale_sentences(d, result.problems)
-    departures = _departures(d, _bifactor(result, d), _unnamed_methods(result, d))
+    shape = _shape(result, d)
+    parts = [f"{name} had {_structure(d, shape).rstrip(',')}."] + _scale_sentences(d, result.problems)
+    departures = _departures(d, shape)
     if departures:
         parts.append(departures.replace("The model also included", f"{name} also included", 1))
     if result.multigroup:  # what distinguishes grouped models: their equalities across groups
@@ -820,11 +847,11 @@ def _fit_figures(result) -> str:
         return "was just-identified (0 df), so its fit could not be tested"
     if r is not None:
         low, high = r.rmsea_robust_ci90
-        return (f"{CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)}, robust CFI = {index_text(r.cfi_robust, beside=GUIDE_VALUES['cfi'])}, "
-                f"robust RMSEA = {index_text(r.rmsea_robust, beside=GUIDE_VALUES['rmsea'])}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr, beside=GUIDE_VALUES['srmr'])}")
+        return (f"{CHI}({r.df}) = {r.chi_square_scaled:.2f}, {_p(r.p_value_scaled)}, robust CFI = {fit_index_text('cfi', r.cfi_robust)}, "
+                f"robust RMSEA = {fit_index_text('rmsea', r.rmsea_robust)}, 90% CI [{unit(low)}, {unit(high)}], SRMR = {fit_index_text('srmr', f.srmr)}")
     low, high = f.rmsea_ci90
-    return (f"{CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {index_text(f.cfi, beside=GUIDE_VALUES['cfi'])}, RMSEA = {index_text(f.rmsea, beside=GUIDE_VALUES['rmsea'])}, "
-            f"90% CI [{unit(low)}, {unit(high)}], SRMR = {unit(f.srmr, beside=GUIDE_VALUES['srmr'])}")
+    return (f"{CHI}({f.df}) = {f.chi_square:.2f}, {_p(f.p_value)}, CFI = {fit_index_text('cfi', f.cfi)}, RMSEA = {fit_index_text('rmsea', f.rmsea)}, "
+            f"90% CI [{unit(low)}, {unit(high)}], SRMR = {fit_index_text('srmr', f.srmr)}")
 
 
 def _comparison_rows(comparison) -> str:
@@ -1018,6 +1045,8 @@ def invariance_paragraph(result, levels) -> str:
     ladder (what each level holds equal, ``levels`` being the ladder's (level, classes held equal, ...) rows), the
     estimator, how each step was judged (the difference test with its authors and the rule), each step's result
     with what a partial-invariance search freed, and the latent mean differences of the scalar model."""
+    from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
+
     steps = result.steps
     first = steps[0].result
     sizes = "; ".join(f"{_name(g.label)}, n = {g.data.n_obs}" for g in first.groups)
@@ -1033,11 +1062,12 @@ def invariance_paragraph(result, levels) -> str:
              + ("; thresholds before loadings as Wu & Estabrook (2016) set out" if first.method.ordinal else "") + "."]
     d = first.description
     if d is not None:
-        parts.append(f"The configural model had {_structure(first, d).rstrip(',')}, with the same pattern in every "
+        shape = _shape(first, d)
+        parts.append(f"The configural model had {_structure(d, shape).rstrip(',')}, with the same pattern in every "
                      f"group, estimated by {_estimator_phrase(first)} ({_sample_phrase(first)}); the factor means of "
                      f"{_name(result.groups[0])} were fixed at zero.")
         parts += _scale_sentences(d, getattr(result, "data_problems", ()))
-        departures = _departures(d, _bifactor(first, d), _unnamed_methods(first, d))
+        departures = _departures(d, shape)
         if departures:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))
     coding = answer_coding_sentence(first.data)
@@ -1047,8 +1077,8 @@ def invariance_paragraph(result, levels) -> str:
     methods = sorted({s.versus_previous.method for s in steps[1:] if s.versus_previous is not None
                       and not s.versus_previous.not_computed}, key=_PREFERRED.index)
     rule = result.rule.description.replace("alpha", unit(result.alpha, 2)).replace(">=", "\u2265")
-    parts.append("The configural model was judged by its own fit against conventional guide values (CFI \u2265 .95, "
-                 "RMSEA \u2264 .06, SRMR \u2264 .08; Hu & Bentler, 1999); each later model by "
+    parts.append("The configural model was judged by its own fit against conventional guide values ("
+                 f"{guides_text(CONFIGURAL_INDICES, signs=True)}; Hu & Bentler, 1999); each later model by "
                  f"{rule}" + (f", the difference test being {_list([m.phrase for m in methods])}" if methods else "")
                  + ".")
     problems = _step_problems(steps)

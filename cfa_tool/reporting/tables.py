@@ -7,7 +7,6 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from cfa_tool.assessment.fit_indices import GUIDE_VALUES
 from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
@@ -15,7 +14,8 @@ from cfa_tool.method import ADJUSTED_TEST, MissingData, WeightKind
 from cfa_tool.language.names import names_text
 from cfa_tool.model.description import parameter_words
 from cfa_tool.reporting.one_item import one_item_factors, one_item_sentence
-from cfa_tool.reporting.numbers import index_text, missing, num, p_phrase, p_value, short, unit, word_list
+from cfa_tool.reporting.numbers import (fit_index_text, guide_text, missing, num, p_phrase, p_value, short, unit,
+                                        word_list)
 from cfa_tool.reporting.remedies import Remedy
 
 GUIDE_NOTE = (
@@ -198,7 +198,6 @@ def fit_rows(result) -> list[FitRow]:
     then the unadjusted ones marked (without the test of close fit); the baseline, the likelihood and the count
     of free parameters last."""
     f, r = result.fit, result.robust
-    G = GUIDE_VALUES
     chi = ("Chi-square", f.chi_square, f.df, f.p_value)
     if f.df == 0:  # nothing to test: CFI, TLI and RMSEA are not defined
         plain = [_row("Chi-square test", "0 df: no test", JUST_IDENTIFIED, chi)]
@@ -206,15 +205,15 @@ def fit_rows(result) -> list[FitRow]:
         low, high = f.rmsea_ci90
         plain = [_row("Chi-square test", f"{f.chi_square:.3f} on {f.df} df, p {p_phrase(f.p_value)}",
                       "p > .05 (very sensitive to N)", chi),
-                 _row("CFI", index_text(f.cfi, beside=G["cfi"]), f">= {short(G['cfi'])}", ("CFI", f.cfi)),
-                 _row("TLI", index_text(f.tli, beside=G["tli"]), f">= {short(G['tli'])}", ("TLI", f.tli)),
-                 _row("RMSEA [90% interval]", f"{index_text(f.rmsea, beside=G['rmsea'])} [{unit(low)}, {unit(high)}]",
-                      f"<= {short(G['rmsea'])}",
+                 _row("CFI", fit_index_text("cfi", f.cfi), guide_text("cfi"), ("CFI", f.cfi)),
+                 _row("TLI", fit_index_text("tli", f.tli), guide_text("tli"), ("TLI", f.tli)),
+                 _row("RMSEA [90% interval]", f"{fit_index_text('rmsea', f.rmsea)} [{unit(low)}, {unit(high)}]",
+                      guide_text("rmsea"),
                       ("RMSEA", f.rmsea, None, None, low, high))]
         if not missing(f.rmsea_p_close) and r is None:
             plain.append(_row("  test of close fit (RMSEA <= .05)", f"p {p_phrase(f.rmsea_p_close)}", "",
                               ("Test of close fit (RMSEA <= .05)", None, None, f.rmsea_p_close)))
-    srmr = _row("SRMR", unit(f.srmr, beside=G["srmr"]), f"<= {short(G['srmr'])}", ("SRMR", f.srmr))
+    srmr = _row("SRMR", fit_index_text("srmr", f.srmr), guide_text("srmr"), ("SRMR", f.srmr))
     if r is None:
         rows = plain + [srmr]
     else:
@@ -224,11 +223,11 @@ def fit_rows(result) -> list[FitRow]:
                      f"p {p_phrase(r.p_value_scaled)}", "the test to read for these data",
                      (f"Scaled chi-square ({r.test.label})", r.chi_square_scaled, r.df, r.p_value_scaled)),
                 _row(label, text, guide, *[(name.capitalize(), value) for name, value in r.pieces]),
-                _row("Robust CFI / TLI", f"{index_text(r.cfi_robust, beside=G['cfi'])} / "
-                     f"{index_text(r.tli_robust, beside=G['tli'])}", f">= {short(G['cfi'])}",
+                _row("Robust CFI / TLI", f"{fit_index_text('cfi', r.cfi_robust)} / {fit_index_text('tli', r.tli_robust)}",
+                     guide_text("cfi"),
                      ("Robust CFI", r.cfi_robust), ("Robust TLI", r.tli_robust)),
-                _row("Robust RMSEA [90% interval]", f"{index_text(r.rmsea_robust, beside=G['rmsea'])} [{unit(rlow)}, "
-                     f"{unit(rhigh)}]", f"<= {short(G['rmsea'])}", ("Robust RMSEA", r.rmsea_robust, None, None, rlow, rhigh)),
+                _row("Robust RMSEA [90% interval]", f"{fit_index_text('rmsea', r.rmsea_robust)} [{unit(rlow)}, "
+                     f"{unit(rhigh)}]", guide_text("rmsea"), ("Robust RMSEA", r.rmsea_robust, None, None, rlow, rhigh)),
                 srmr] + [row.unadjusted() for row in plain if f.df > 0]
     rows.append(_row("Baseline (independence) chi-square", f"{f.baseline_chi_square:.3f} on {f.baseline_df} df", "",
                      ("Baseline (independence) chi-square", f.baseline_chi_square, f.baseline_df)))
@@ -715,7 +714,10 @@ def _all_if_unusable(result, body) -> tuple[int, ...]:
 
 def distinct_table(result, group: int = 0) -> ReportTable | None:
     """Are the factors distinct: per pair of trait factors their correlation (with its interval when the
-    factors are scaled by their variances), the heterotrait-monotrait ratio and the Fornell-Larcker comparison."""
+    factors are scaled by their variances), the heterotrait-monotrait ratio and the Fornell-Larcker comparison.
+    Left out, with a note: a bifactor model's general factor with its specific factors, and pairs whose correlation
+    the model fixes (at any value: 'uncorrelated', or a covariance fixed at 0 or between factors of fixed
+    variances), which the data cannot show to be distinct or not."""
     g = result.groups[group]
     traits = {r.factor: r for r in g.reliability if r.average_variance_extracted is not None}
     htmt = {(h.first, h.second): h for h in g.htmt}
@@ -725,8 +727,9 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
     for r in result.estimates:
         if r.kind == "factor_covariance" and r.group == g.label:
             correlations[frozenset(r.variables)] = r
-    unit_variance = {r.variables[0] for r in result.estimates
-                     if r.kind == "factor_variance" and r.group == g.label and not r.free and r.estimate == 1.0}
+    fixed_variance = {r.variables[0]: r.estimate for r in result.estimates
+                      if r.kind == "factor_variance" and r.group == g.label and not r.free}
+    unit_variance = {f for f, value in fixed_variance.items() if value == 1.0}
     body, reasons, numbers = [], [], []
     names = list(traits)
     parameters_are_correlations = not higher_order(result)  # otherwise the factors' correlations are implied ones
@@ -737,9 +740,11 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
                 nested.append((a, b))
                 continue
             row = correlations.get(frozenset((a, b)))
-            if parameters_are_correlations and (row is None or not row.free):  # 'uncorrelated' leaves none
-                fixed.append((a, b))
-            elif row is not None:
+            if parameters_are_correlations and (row is None or (not row.free and (
+                    row.estimate == 0 or {a, b} <= set(fixed_variance)))):  # 'uncorrelated' leaves no row
+                fixed.append((a, b, 0.0 if row is None else row.standardized))
+                continue
+            if row is not None:
                 other_scale |= {a, b} - unit_variance
             implied = implied_factor_correlation(result, group, a, b)
             r = implied if implied is not None else (row.standardized if row is not None else 0.0)
@@ -766,7 +771,7 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
     if not any(row[3] for row in body):  # no interval to show (fixed correlations, or factors scaled otherwise)
         columns.pop(3)
         body = [row[:3] + row[4:] for row in body]
-        note += " No interval of r is shown: " + _no_interval_reasons(fixed, other_scale, not parameters_are_correlations)
+        note += " No interval of r is shown: " + _no_interval_reasons(other_scale, not parameters_are_correlations)
     else:
         note += (" The interval of a correlation is shown when both factors are scaled by their variances (then their "
                  "covariance is the correlation).")
@@ -776,6 +781,13 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
         note += (f" Not compared: {word_list([f'{a} with {b}' for a, b in nested])}. A general factor and its specific "
                  f"factors (a bifactor model) measure the same items, the specific factors what the items share beyond "
                  f"the general factor, so whether they are distinct is not a question these comparisons can answer.")
+    if fixed:
+        values = [short(v) for v in sorted({round(r, 6) for _, _, r in fixed})]
+        many = len(fixed) > 1
+        note += (f" Left out: {word_list([f'{a} with {b}' for a, b, _ in fixed])}, whose correlation"
+                 f"{'s' if many else ''} the model fixes (at {word_list(values).replace(' and ', ' or ')}): a "
+                 f"correlation the model sets is not estimated from the data, so it cannot show whether two factors "
+                 f"are distinct.")
     if not body:
         return None
     return _table(f"distinct_{group}", "Are the factors distinct?", columns, body, _unusable(result) + note,
@@ -784,15 +796,11 @@ def distinct_table(result, group: int = 0) -> ReportTable | None:
                            "sqrt(AVE) > |r|"], numbers))
 
 
-def _no_interval_reasons(fixed: list[tuple[str, str]], other_scale: set[str], implied: bool) -> str:
-    """Why no correlation of the distinct table has an interval: the model fixes them, a higher-order factor implies
-    them, or some factors are scaled otherwise than by their variances (the only case the advice to scale by
-    variance fits, so that it never asks for what the model already does)."""
+def _no_interval_reasons(other_scale: set[str], implied: bool) -> str:
+    """Why no correlation of the distinct table has an interval: a higher-order factor implies them, or some factors
+    are scaled otherwise than by their variances (the only case the advice to scale by variance fits, so that it
+    never asks for what the model already does); the correlations the model fixes are left out of the table."""
     parts = []
-    if fixed:
-        parts.append(f"the correlation{'s' if len(fixed) > 1 else ''} of "
-                     f"{word_list([f'{a} and {b}' for a, b in fixed])} {'are' if len(fixed) > 1 else 'is'} fixed by the "
-                     f"model, not estimated")
     if implied:
         parts.append("the correlations of factors below a higher-order factor are implied by it, not parameters")
     elif other_scale:

@@ -15,10 +15,11 @@ from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod,
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
 from cfa_tool.reporting.paragraph import _parameter, comparison_paragraph, design_sentence, invariance_paragraph
-from cfa_tool.assessment.fit_indices import GUIDE_VALUES
-from cfa_tool.reporting.numbers import missing, num, p_phrase, p_value, short, signed, unit, word_list
+from cfa_tool.reporting.numbers import (fit_index_text, guides_text, missing, num, p_phrase, p_value, short, signed, unit,
+                                        word_list)
 from cfa_tool.language.spec import equality_words
 from cfa_tool.reporting.tables import GUIDE_NOTE, HIGH_STAKES_NOTE, ProblemNotice, ReportTable, _table
+from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
 CHECK_SOLUTIONS = "Check before interpreting these solutions"  # the cautions of several models' solutions
@@ -298,12 +299,12 @@ def _level_fit_cells(result, adjusted: bool) -> tuple[list[str], list]:
         return ["did not converge", "", "", "", ""], [None] * 6
     if adjusted and robust is not None:  # ordinal items: the adjusted statistic and robust indices
         return ([f"{robust.chi_square_scaled:.2f} ({robust.df})", p_value(robust.p_value_scaled),
-                 unit(robust.cfi_robust, beside=GUIDE_VALUES["cfi"]), unit(robust.rmsea_robust, beside=GUIDE_VALUES["rmsea"]),
-                 unit(fit.srmr, beside=GUIDE_VALUES["srmr"])],
+                 fit_index_text("cfi", robust.cfi_robust), fit_index_text("rmsea", robust.rmsea_robust),
+                 fit_index_text("srmr", fit.srmr)],
                 [robust.chi_square_scaled, robust.df, robust.p_value_scaled, robust.cfi_robust, robust.rmsea_robust,
                  fit.srmr])
-    return ([f"{fit.chi_square:.2f} ({fit.df})", p_value(fit.p_value), unit(fit.cfi, beside=GUIDE_VALUES["cfi"]),
-             unit(fit.rmsea, beside=GUIDE_VALUES["rmsea"]), unit(fit.srmr, beside=GUIDE_VALUES["srmr"])],
+    return ([f"{fit.chi_square:.2f} ({fit.df})", p_value(fit.p_value), fit_index_text("cfi", fit.cfi),
+             fit_index_text("rmsea", fit.rmsea), fit_index_text("srmr", fit.srmr)],
             [fit.chi_square, fit.df, fit.p_value, fit.cfi, fit.rmsea, fit.srmr])
 
 
@@ -317,8 +318,8 @@ def _step_cells(t, delta_srmr, level: str) -> tuple[list[str], list]:
             [t.chi_square_difference, t.df_difference, t.p_value, t.delta_cfi, t.delta_rmsea, delta_srmr])
 
 
-CONFIGURAL_GUIDE = (f"The configural model holds when it fits by the guide values (CFI >= {short(GUIDE_VALUES['cfi'])}, "
-                    f"RMSEA <= {short(GUIDE_VALUES['rmsea'])}, SRMR <= {short(GUIDE_VALUES['srmr'])}; Hu & Bentler 1999).")
+CONFIGURAL_GUIDE = (f"The configural model holds when it fits by the guide values ({guides_text(CONFIGURAL_INDICES)}; "
+                    f"Hu & Bentler 1999).")
 CONFIGURAL_NOTE = (f"{CONFIGURAL_GUIDE} Change-in-fit guides are common practice: CFI falling by no more than .010 "
                    "(Cheung & Rensvold 2002), RMSEA rising by less than .015, SRMR by less than .030 for loadings and "
                    ".010 after (Chen 2007). All guides are conventions, not laws.")

@@ -23,7 +23,7 @@ from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ord
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
                                       with_missing_reading, with_rows_read)
 from cfa_tool.assessment.admissibility import ProblemKind, group_size_problems
-from cfa_tool.assessment.fit_indices import GUIDE_VALUES
+from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
@@ -66,9 +66,9 @@ STOP_OFF = "no search was asked for"
 STOP_NOTHING_LEFT = ("no equality left that may be freed (one loading and one intercept per factor stay equal, so "
                      "that factor scales and means remain comparable)")
 STOP_CAP = "the search reached its limit of {cap} freed parameters at this step"
-#: The configural model is judged on its own fit, by the report's guide values (assessment.fit_indices.GUIDE_VALUES:
-#: CFI at least .95, RMSEA at most .06, SRMR at most .08)
-CONFIGURAL_GUIDES = {k: GUIDE_VALUES[k] for k in ("cfi", "rmsea", "srmr")}
+#: The configural model is judged on its own fit by these indices, against the report's guide values
+#: (assessment.fit_indices.FIT_GUIDES: CFI at least .95, RMSEA at most .06, SRMR at most .08)
+CONFIGURAL_INDICES = ("cfi", "rmsea", "srmr")
 PARTIAL_CHOICES = ("none", "auto")
 MAX_FREED_PER_STEP = 10
 SEARCH_WARNING = (
@@ -596,14 +596,12 @@ def _total_moments(result: FitResult, higher: dict, rows: dict, factor: str, gro
 
 
 def _judged(fit: dict[str, float]) -> str:
-    """The indices of :func:`_fit_values` against :data:`CONFIGURAL_GUIDES`, those that miss theirs first:
-    'RMSEA .0605, above .06; CFI .951 and SRMR .046 meet theirs'."""
-    below = ("cfi",)  # a higher value fits better
-    missed = [k for k, v in fit.items() if (v < CONFIGURAL_GUIDES[k] if k in below else v > CONFIGURAL_GUIDES[k])]
-    guide = {k: journal_decimal(g).rstrip("0") for k, g in CONFIGURAL_GUIDES.items()}
-    said = [f"{k.upper()} {journal_decimal(fit[k], CONFIGURAL_GUIDES[k])}, {'below' if k in below else 'above'} {guide[k]}"
-            for k in missed]
-    met = [f"{k.upper()} {journal_decimal(v, CONFIGURAL_GUIDES[k])}" for k, v in fit.items() if k not in missed]
+    """The indices of :func:`_fit_values` against their guides (assessment.fit_indices.FIT_GUIDES), those that miss
+    theirs first: 'RMSEA .0605, above .06; CFI .951 and SRMR .046 meet theirs'."""
+    missed = [k for k, v in fit.items() if not FIT_GUIDES[k].met_by(v)]
+    said = [f"{k.upper()} {journal_decimal(fit[k], FIT_GUIDES[k].value)}, {FIT_GUIDES[k].missed_side} "
+            f"{journal_decimal(FIT_GUIDES[k].value).rstrip('0')}" for k in missed]
+    met = [f"{k.upper()} {journal_decimal(v, FIT_GUIDES[k].value)}" for k, v in fit.items() if k not in missed]
     if met:
         said.append(f"{' and '.join(met)} {'meets its' if len(met) == 1 else 'meet theirs'}")
     return "; ".join(said)
@@ -618,14 +616,14 @@ def _fit_values(result: FitResult) -> dict[str, float]:
 
 
 def configural_fits(result: FitResult) -> bool:
-    """The configural model on its own fit, by :data:`CONFIGURAL_GUIDES` (a perfect fit with 0 df counts as fitting)."""
+    """The configural model on its own fit, by :data:`CONFIGURAL_INDICES` against their guides (a perfect fit with
+    0 df counts as fitting)."""
     if result.fit is None:
         return False
     if result.fit.df == 0:
         return True
     values = _fit_values(result)
-    return (values["cfi"] >= CONFIGURAL_GUIDES["cfi"] and values["rmsea"] <= CONFIGURAL_GUIDES["rmsea"]
-            and values["srmr"] <= CONFIGURAL_GUIDES["srmr"])
+    return all(FIT_GUIDES[k].met_by(values[k]) for k in CONFIGURAL_INDICES)
 
 
 def _one_per_constraint(tests: tuple[ModificationIndex, ...], labels: tuple[str, ...]) -> tuple[ModificationIndex, ...]:

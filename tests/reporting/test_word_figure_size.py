@@ -61,27 +61,35 @@ def test_a_small_diagram_stays_on_the_portrait_page():
     assert orientation == WD_ORIENT.PORTRAIT and _smallest_points(report.figures[0].svg, inches) >= MIN_FIGURE_TEXT
 
 
-def test_a_diagram_of_thirty_items_goes_on_in_strips(tmp_path):
-    # thirty items in five factors of six (simulated with a fixed seed): drawn in three bands of factors, too small
-    # to read across one page (about 4.5 pt), so the Word figure is cut between the bands, in strips across landscape
-    # pages whose labels print at MIN_FIGURE_TEXT or more (they printed at 6.4 pt before the rule of diagram.py)
+def _items_in_factors(factors: int):
+    """A report of 6 * ``factors`` items in ``factors`` factors of six (simulated with a fixed seed)."""
     import numpy as np
     import pandas as pd
 
+    rng = np.random.default_rng(7)
+    k = factors
+    scores = rng.multivariate_normal(np.zeros(k), 0.4 * np.ones((k, k)) + 0.6 * np.eye(k), size=600)
+    data = pd.DataFrame({f"item{j + 1:02d}": 0.7 * scores[:, j // 6] + 0.6 * rng.standard_normal(600) + 3
+                         for j in range(6 * k)})
+    model = "".join(f"factor f{f + 1}: " + ", ".join(f"item{j + 1:02d}" for j in range(6 * f, 6 * f + 6)) + "\n"
+                    for f in range(k))
+    return fit_report(cfa_tool.fit(model, data))
+
+
+def test_a_diagram_of_forty_two_items_goes_on_in_strips():
+    # forty-two items in seven factors of six: drawn in four bands of factors, too small to read across one page
+    # (about 4.7 pt, below ONE_PAGE_TEXT), so the Word figure is cut between the bands, in strips across landscape
+    # pages whose labels print at MIN_FIGURE_TEXT or more
+    from cfa_tool.reporting.docx_report import ONE_PAGE_TEXT, _document, _figure_areas
     from cfa_tool.reporting.picture import svg_strips
 
-    rng = np.random.default_rng(7)
-    scores = rng.multivariate_normal(np.zeros(5), 0.4 * np.ones((5, 5)) + 0.6 * np.eye(5), size=600)
-    data = pd.DataFrame({f"item{j + 1:02d}": 0.7 * scores[:, j // 6] + 0.6 * rng.standard_normal(600) + 3
-                         for j in range(30)})
-    model = "".join(f"factor f{f + 1}: " + ", ".join(f"item{j + 1:02d}" for j in range(6 * f, 6 * f + 6)) + "\n"
-                    for f in range(5))
-    report = fit_report(cfa_tool.fit(model, data))
+    report = _items_in_factors(7)
     svg = report.figures[0].svg
     width, height = (float(re.search(rf'<svg[^>]*?\s{a}="([0-9.]+)"', svg).group(1)) for a in ("width", "height"))
     breaks = [float(b) for b in re.search(r'data-breaks="([0-9. ]+)"', svg).group(1).split()]
-    assert len(breaks) == 2  # three bands
-    assert _smallest_points(svg, min(6.0, 8.0 * width / height)) < MIN_FIGURE_TEXT  # whole, on the portrait page
+    assert len(breaks) == 3  # four bands
+    areas = _figure_areas(_document("x", None), report.figures[0].note, heading=True)  # portrait, landscape
+    assert _smallest_points(svg, max(min(w, h * width / height) for w, h in areas)) < ONE_PAGE_TEXT  # whole
     document = docx.Document(io.BytesIO(report_docx(report, dpi=96)))
     pictures = document.inline_shapes
     captions = [p.text for p in document.paragraphs if p.text.startswith("Figure ")]
@@ -92,6 +100,51 @@ def test_a_diagram_of_thirty_items_goes_on_in_strips(tmp_path):
     assert len(pictures) <= len(breaks) + 1  # cut only between bands (picture.svg_strips), where nothing is drawn
     strips = svg_strips(svg, 0.0)  # every cut made: each strip's top is a break
     assert [float(re.search(r'viewBox="0 ([0-9.]+) ', s).group(1)) for s in strips][1:] == breaks
+
+
+@pytest.mark.parametrize("case", ["higher-order", "thirty items", "demo"])
+def test_a_figure_that_reads_on_one_page_is_not_cut_across_two(case):
+    # the bundled higher-order model's figure was cut into two strips on two landscape pages, the second half empty
+    # (and so was the demo's): a drawing whose smallest text prints at ONE_PAGE_TEXT or more whole on one page goes
+    # there, in the orientation where it prints larger, sized for the page less its heading, caption and note
+    from docx.shared import Emu as E
+
+    from cfa_tool.reporting.docx_report import HEADING_ROOM, ONE_PAGE_TEXT, _figure_room
+
+    data = resource_dir("demo") / "rider_survey.csv"
+    report = (_items_in_factors(5) if case == "thirty items" else
+              fit_report(cfa_tool.fit(resource_dir("models") / ("rider_higher_order.cfa" if case == "higher-order"
+                                                                else "rider_three_factors.cfa"), data)))
+    svg = report.figures[0].svg
+    document = docx.Document(io.BytesIO(report_docx(report, dpi=96)))
+    assert [p.text for p in document.paragraphs if p.text.startswith("Figure ")] == ["Figure 1"]
+    assert len(document.inline_shapes) == 1
+    orientation, inches = _figure(report)
+    assert _smallest_points(svg, inches) >= ONE_PAGE_TEXT
+    if case == "higher-order":  # a tall drawing prints larger across the portrait page's width
+        assert orientation == WD_ORIENT.PORTRAIT and abs(inches - 6.0) < 0.01
+    section = next(s for s in document.sections if s.orientation == orientation)
+    text_height = E(section.page_height - section.top_margin - section.bottom_margin).inches
+    across = E(section.page_width - section.left_margin - section.right_margin).inches
+    shape = document.inline_shapes[0]
+    assert E(shape.height).inches + _figure_room(report.figures[0].note, across) + HEADING_ROOM / 72 <= text_height + 1e-6
+
+
+def test_the_heading_room_is_taken_before_the_layout_is_chosen():
+    """One computation of a figure's room: with the figures' heading on its page the layout is chosen for the room
+    left under the heading (before, the room was taken after the choice, so a drawing chosen to print at a size
+    printed smaller)."""
+    from cfa_tool.reporting.docx_report import HEADING_ROOM, _document, _figure_areas, _figure_layout
+
+    report = fit_report(cfa_tool.fit(resource_dir("models") / "rider_higher_order.cfa",
+                                     resource_dir("demo") / "rider_survey.csv"))
+    figure = report.figures[0]
+    document = _document("x", None)
+    plain, headed = _figure_areas(document, figure.note), _figure_areas(document, figure.note, heading=True)
+    for (w, h), (w2, h2) in zip(plain, headed):
+        assert w2 == w and h2 == pytest.approx(h - HEADING_ROOM / 72)
+    landscape, pieces, area = _figure_layout(document, figure.svg, figure.note, heading=True)
+    assert area == headed[landscape] and len(pieces) == 1
 
 
 def test_the_caption_the_drawing_and_its_note_are_kept_on_one_page():
