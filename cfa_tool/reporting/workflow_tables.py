@@ -1008,15 +1008,23 @@ def population_parts(population) -> tuple[str, ReportTable]:
     else:
         line = ("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances "
                 "1) and converted to the model's scaling; values from 'start' statements replace them.")
+    def source(v: dict) -> str:  # a parameter held equal names the one whose value it shares
+        equal = v.get("equal_to")
+        return v["from"] if equal is None else \
+            f"{v['from']} to {parameter_words(equal['kind'], tuple(equal['variables']), article=False)}"
+
     rows = [[parameter_words(v["kind"], tuple(v["variables"]), article=False), num(v["value"]), num(v["standardized"]),
-             v["from"]] for v in entries]
-    values = [[v["kind"], names_text(v["variables"]), v["value"], v["standardized"], v["from"]] for v in entries]
+             source(v)] for v in entries]
+    values = [[v["kind"], names_text(v["variables"]), v["value"], v["standardized"], source(v)] for v in entries]
     words = ("From: earlier fit = its estimate" if population.fitted_from is not None else
              "From: default = the standardized default in the model's scaling; start = a 'start' statement")
     if population.fitted_from is not None and population.equal_categories:
         words += "; default = the thresholds of equally likely categories"
     if any(v["from"] in (ValueSource.FIXED.value, ValueSource.SCALE.value) for v in entries):
         words += "; fix = a 'fix' statement; scale (fixed) = fixed to give a factor its scale"
+    if any(v["from"] == ValueSource.EQUAL.value for v in entries):
+        words += "; equal to = held by an 'equal' statement at the value of the parameter named (its row says where "\
+                 "that value came from)"
     words += "."
     table = _table("population", "Population values used", [("Parameter", "l"), ("Value", "r"), ("Standardized", "r"),
                                                              ("From", "l")], rows, words,

@@ -57,6 +57,7 @@ class ValueSource(Enum):
     FIXED = "fix"  # a 'fix' statement of the model file
     SCALE = "scale (fixed)"  # fixed to give a factor its scale
     EARLIER_FIT = "earlier fit"
+    EQUAL = "equal"  # an 'equal' statement holds it at the value of the parameter its row's 'equal_to' names
 
 
 @dataclass(frozen=True, eq=False)
@@ -90,8 +91,10 @@ class Population:
 
     def values(self) -> list[dict]:
         """Each parameter's population value, unstandardized and standardized, whether it was a default and
-        where it came from (a :class:`ValueSource` word), for the report and JSON: the free parameters and the
-        values the model fixes (its 'fix' statements and the values that set each factor's scale)."""
+        where it came from (a :class:`ValueSource` word), for the report and JSON: the free parameters, those an
+        'equal' statement holds equal to one of them (from 'equal', with ``equal_to``: the kind and variables of the
+        parameter whose row gives the shared value's source), and the values the model fixes (its 'fix' statements
+        and the values that set each factor's scale)."""
         from cfa_tool.assessment.standardized import standardize_entries
 
         model = StructuredModel(self.table)
@@ -99,7 +102,7 @@ class Population:
         codes, rows, cols = self.table.entry_arrays()
         standardized = standardize_entries(model.matrices(self.theta), codes, rows, cols, entries)[0]
         defaulted = set(self.defaulted)
-        out, seen = [], set()
+        out, first = [], {}  # each free parameter's first entry: (kind, variables)
         for e, par in enumerate(self.table.parameters):
             if not par.free:
                 if par.kind not in ("intercept", "mean", "threshold") and par.origin in ("user", "scale"):
@@ -107,9 +110,13 @@ class Population:
                     out.append({"kind": par.kind, "variables": list(par.variables), "value": float(entries[e]),
                                   "standardized": float(standardized[e]), "default": False, "from": source.value})
                 continue
-            if par.terms[0][0] in seen:
+            if par.terms[0][0] in first:
+                kind, variables = first[par.terms[0][0]]
+                out.append({"kind": par.kind, "variables": list(par.variables), "value": float(entries[e]),
+                            "standardized": float(standardized[e]), "default": False,
+                            "from": ValueSource.EQUAL.value, "equal_to": {"kind": kind, "variables": list(variables)}})
                 continue
-            seen.add(par.terms[0][0])
+            first[par.terms[0][0]] = (par.kind, par.variables)
             default = self.table.free_labels[par.terms[0][0]] in defaulted
             source = (ValueSource.EARLIER_FIT if self.fitted_from is not None else ValueSource.DEFAULT if default
                       else ValueSource.START)
