@@ -388,7 +388,6 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     one_group_only(spec, "the simulation draws rows of one group")
     table = build_parameter_table(spec)
     impossible_fixed_values(table, spec.source)
-    starts_beyond_bounds(spec)
     model = StructuredModel(table)
     given = table.start.copy()
     kind_of: dict[int, str] = {}
@@ -414,13 +413,7 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     if not np.isnan(given).all():
         theta = _defaults_beside_given(table, model, theta, np.isnan(given), target,
                                        standardized_entries(table, model, est.theta))
-    outside = np.flatnonzero((theta < table.lower) | (theta > table.upper)).tolist()
-    if outside:  # a default the model's own bounds forbid (a 'start' value beyond one is refused above)
-        k = outside[0]
-        raise ModelError(f"{spec.source}: the default population value {theta[k]:.3g} of {table.free_labels[k]} lies "
-                         f"outside the model's own bound ({_bound_words(table.lower[k], table.upper[k])}), so every "
-                         f"simulated sample would hold its estimate at the bound; give its population value with a "
-                         f"'start' statement within the bound")
+    beyond_bounds(spec, table, theta, given)
     sigma = model.implied(theta)
     if log_det_pd(sigma) is None:  # not positive definite, or not finite
         raise OptionError("the population values imply a covariance matrix that is not positive definite or not finite "
@@ -437,24 +430,39 @@ def _bound_words(lower: float | None, upper: float | None) -> str:
     return f"at least {lower:g}" if low else f"at most {upper:g}"
 
 
-def starts_beyond_bounds(spec: Spec) -> None:
-    """Refuse a 'start' value that a 'bound' statement of the same model forbids, naming both lines: in a
-    simulation the start values are the population's, and a population beyond the model's own bound holds every
-    replication's estimate at the bound (coverage 0, standard errors meaningless)."""
+def beyond_bounds(spec: Spec, table: ParameterTable, theta: np.ndarray, given: np.ndarray) -> None:
+    """Refuse a population value that a 'bound' statement of the same model forbids, whether a 'start' statement
+    gave it (``given``: the table's start values, NaN where none) or it took the default: in a simulation the
+    population is where every replication starts, and a population beyond the model's own bound holds every
+    replication's estimate at the bound (coverage 0, standard errors meaningless).  A 'start' value is named with
+    both lines where the two statements name the same parameter (else with the parameter they share through an
+    'equal' statement)."""
+    outside = np.flatnonzero((theta < table.lower) | (theta > table.upper)).tolist()
+    if not outside:
+        return
+    k = outside[0]
+    bound = _bound_words(table.lower[k], table.upper[k])
+    if np.isnan(given[k]):
+        raise ModelError(f"{spec.source}: the default population value {theta[k]:.3g} of {table.free_labels[k]} lies "
+                         f"outside the model's own bound ({bound}), so every simulated sample would hold its estimate "
+                         f"at the bound; give its population value with a 'start' statement within the bound")
+    consequence = "every simulated sample would hold its estimate at the bound; change the start value or the bound"
     for setting in spec.starts:
         for ref in setting.refs:
-            for bound in spec.bounds:
-                for other in bound.refs:
+            for statement in spec.bounds:
+                for other in statement.refs:
                     if other.key() != ref.key() or (other.group is not None and ref.group is not None
                                                     and other.group != ref.group):
                         continue
-                    if ((bound.lower is not None and setting.value < bound.lower)
-                            or (bound.upper is not None and setting.value > bound.upper)):
+                    if ((statement.lower is not None and setting.value < statement.lower)
+                            or (statement.upper is not None and setting.value > statement.upper)):
                         raise ModelError(
                             f"the population value {setting.value:g} of {ref} (its 'start' value) lies outside the "
-                            f"model's own bound on it ({_bound_words(bound.lower, bound.upper)}, line "
-                            f"{other.location.line}): every simulated sample would hold its estimate at the bound; "
-                            f"change the start value or the bound", ref.location, spec.source_line(ref.location))
+                            f"model's own bound on it ({_bound_words(statement.lower, statement.upper)}, line "
+                            f"{other.location.line}): {consequence}", ref.location, spec.source_line(ref.location))
+    raise ModelError(f"{spec.source}: the population value {given[k]:g} of {table.free_labels[k]} (a 'start' value, "
+                     f"shared through an 'equal' statement) lies outside the model's own bound ({bound}) on a "
+                     f"parameter held equal to it: {consequence}")
 
 
 def simulate_rows(sigma: np.ndarray, n: int, rng: np.random.Generator, means: np.ndarray | None = None) -> np.ndarray:

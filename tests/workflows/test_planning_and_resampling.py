@@ -407,6 +407,22 @@ def test_a_population_beyond_the_models_own_bound_is_refused():
                                       "start variance(y4) = 0.05\n"))  # within the bound: taken
 
 
+def test_a_start_value_beyond_a_bound_on_a_parameter_held_equal_is_called_a_start_value():
+    # the start values were checked against the bounds twice (statement by statement, then the table), and the
+    # table's check called a start value shared through an 'equal' statement a default, advising a 'start' statement;
+    # one check now names what the model file gave
+    from cfa_tool.errors import ModelError
+
+    spec = parse_model("factor f: y1, y2, y3, y4\nequal variance(y3), variance(y4)\nbound variance(y4) <= 0.1\n"
+                       "start variance(y3) = 0.9\n")
+    for run_it in (lambda: simulate(spec, 50), lambda: monte_carlo_power(spec, 300, replications=5, workers=1)):
+        with pytest.raises(ModelError) as caught:
+            run_it()
+        said = str(caught.value)
+        assert "the population value 0.9 of variance(y3) (a 'start' value" in said and "at most 0.1" in said
+        assert "default" not in said and "give its population value with a 'start' statement" not in said
+
+
 def test_the_power_report_says_what_the_plan_assumes_and_what_ordinal_items_change(tmp_path):
     # new-user trial: 'power' of a model whose items are all ordinal, fitted under a cluster design, gave the
     # normal-theory plan without a word about either
