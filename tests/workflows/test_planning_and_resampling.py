@@ -547,6 +547,17 @@ def test_bootstrap_counts_resamples_whose_solution_is_not_admissible():
     assert bounded.to_dict()["result"]["inadmissible"] == bounded.inadmissible
 
 
+def test_bootstrap_workers_judge_admissibility_as_one_process_does():
+    # the resamples' admissibility is judged in the worker processes (as the ordinal path judges it): 1,000
+    # resamples in two batches on two processes give the count and the words of one process
+    model, data = NEAR_ZERO_MODEL, _near_zero_rows()
+    one = cfa_tool.bootstrap(model, data, replications=1000, seed=4, workers=1, bollen_stine=False)
+    two = cfa_tool.bootstrap(model, data, replications=1000, seed=4, workers=2, bollen_stine=False)
+    assert one.inadmissible > 0 and one.inadmissible_named.startswith("negative residual variance")
+    assert (two.converged, two.inadmissible, two.inadmissible_named) == (one.converged, one.inadmissible,
+                                                                        one.inadmissible_named)
+
+
 def test_cutoffs_count_samples_whose_solution_is_not_admissible():
     # a fit whose residual variance of y4 is held at its bound of zero: the samples drawn from the fitted model have
     # that parameter on the boundary, where an estimate lands on the bound in about half of the samples (Self &
