@@ -374,7 +374,13 @@ def test_power_simulation_counts_negative_variance_estimates():
     result = monte_carlo_power(spec, n, replications=400, seed=3, workers=1)
     expected = share * result.converged
     assert abs(result.inadmissible - expected) < 4 * np.sqrt(expected * (1 - share))
-    assert f"(as a single fit would judge it): {result.inadmissible};" in " ".join(report_of(result).lines[0].split())
+    report = report_of(result)
+    assert report.notice.lines[0].startswith(f"{result.inadmissible} of the {result.converged} converged replications "
+                                             f"(negative residual variance")
+    # said once: the notice, not again among the lines (power reports said it twice)
+    said = " ".join(result.summary(width=400).split())
+    assert said.count("not admissible, as a single fit would judge it") == 1
+    assert "not admissible" not in " ".join(report.lines)
     assert result.to_dict()["inadmissible"] == result.inadmissible
     assert monte_carlo_power(spec, 3000, replications=20, seed=3, workers=1).inadmissible == 0
     # held at a bound of zero instead ('bound variance(y4) >= 0'), the same samples' estimates are inadmissible as a
@@ -542,8 +548,11 @@ def test_bootstrap_counts_resamples_whose_solution_is_not_admissible():
     assert abs(bounded.inadmissible - free.inadmissible) <= 2
     assert free.inadmissible_named == f"negative residual variance (the residual variance of y4) in {free.inadmissible}"
     assert bounded.inadmissible_named == f"the residual variance of y4 held at a bound in {bounded.inadmissible}"
-    assert report_of(bounded).warnings[0].startswith(f"{bounded.inadmissible} of the {bounded.converged} converged "
-                                                     f"resamples have a solution that is not admissible")
+    assert report_of(bounded).warnings[0] == (
+        f"{bounded.inadmissible} of the {bounded.converged} converged resamples ({bounded.inadmissible_named}) have a "
+        f"solution that is not admissible, as a single fit would judge it; they are kept in the intervals, which are of "
+        f"the estimates' sampling distribution, such solutions included")
+    assert " ".join(bounded.summary(width=400).split()).count("not admissible, as a single fit would judge it") == 1
     assert bounded.to_dict()["result"]["inadmissible"] == bounded.inadmissible
 
 
@@ -573,6 +582,7 @@ def test_cutoffs_count_samples_whose_solution_is_not_admissible():
     assert named == f"the residual variance of y4 held at a bound in {count}"
     assert any(w.startswith(f"{count} of the {cut.converged_correct} converged samples from the fitted model")
                for w in report_of(cut).warnings)
+    assert " ".join(cut.summary(width=400).split()).count("not admissible, as a single fit would judge it") == 1
     assert cut.to_dict()["result"]["inadmissible_correct"] == count
 
 
