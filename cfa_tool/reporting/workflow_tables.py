@@ -11,6 +11,7 @@ from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, desi
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.language.names import names_text
 from cfa_tool.model.description import label_words, parameter_words
+from cfa_tool.options import Option
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
@@ -984,8 +985,8 @@ def population_parts(population) -> tuple[str, ReportTable]:
     entries = population.values()
     if population.fitted_from is not None:
         line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}"
-                + (" but the thresholds, which cut equally likely categories (as many as --categories or the "
-                   "'answers' statement gives)" if population.equal_categories else "") + "; the items' means are "
+                + (f" but the thresholds, which cut equally likely categories (as many as {Option.CATEGORIES} or the "
+                   f"'answers' statement gives)" if population.equal_categories else "") + "; the items' means are "
                 f"{population.means_from.value}"
                 + (", and its values are in standard-deviation units (a correlation matrix without standard "
                    "deviations)" if population.standard_units else "")
