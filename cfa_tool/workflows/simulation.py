@@ -436,12 +436,21 @@ def beyond_bounds(spec: Spec, table: ParameterTable, theta: np.ndarray, given: n
     population is where every replication starts, and a population beyond the model's own bound holds every
     replication's estimate at the bound (coverage 0, standard errors meaningless).  A 'start' value is named with
     both lines where the two statements name the same parameter (else with the parameter they share through an
-    'equal' statement)."""
-    outside = np.flatnonzero((theta < table.lower) | (theta > table.upper)).tolist()
+    'equal' statement).  A default held at a bound is refused too: the fit that converts the standardized defaults
+    to the model's scaling stops there when the standardized default lies beyond it."""
+    with np.errstate(invalid="ignore"):  # infinite bounds are no bounds
+        held = np.isnan(given) & np.any([np.isfinite(limit) & (np.abs(theta - limit) <= 1e-8 * np.maximum(1.0, np.abs(limit)))
+                                         for limit in (table.lower, table.upper)], axis=0)
+    outside = np.flatnonzero((theta < table.lower) | (theta > table.upper) | held).tolist()
     if not outside:
         return
     k = outside[0]
     bound = _bound_words(table.lower[k], table.upper[k])
+    if held[k]:  # the conversion to the model's scaling stopped a default at the bound: its standardized default lies beyond
+        raise ModelError(f"{spec.source}: the default population value of {table.free_labels[k]} lies beyond the "
+                         f"model's own bound ({bound}) and is held at it ({theta[k]:.3g}), so the simulated samples "
+                         f"would hold its estimate at the bound; give its population value with a 'start' statement "
+                         f"within the bound")
     if np.isnan(given[k]):
         raise ModelError(f"{spec.source}: the default population value {theta[k]:.3g} of {table.free_labels[k]} lies "
                          f"outside the model's own bound ({bound}), so every simulated sample would hold its estimate "

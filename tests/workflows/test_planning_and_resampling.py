@@ -429,6 +429,24 @@ def test_a_start_value_beyond_a_bound_on_a_parameter_held_equal_is_called_a_star
         assert "default" not in said and "give its population value with a 'start' statement" not in said
 
 
+def test_a_default_population_value_held_at_the_models_own_bound_is_refused():
+    # the standardized default residual variance of y4 is 1 - .7^2 = .51 (this module's documented defaults,
+    # computed by hand), beyond 'bound variance(y4) <= 0.1': the conversion to the model's scaling stopped it at 0.1
+    # and moved the other defaults (0.696 instead of .51), and every sample was drawn from a population on the
+    # boundary without a word; it is refused as a default beyond the bound is
+    from cfa_tool.errors import ModelError
+
+    spec = parse_model("factor f: y1, y2, y3, y4\nbound variance(y4) <= 0.1\n")
+    for run_it in (lambda: simulate(spec, 50), lambda: monte_carlo_power(spec, 300, replications=5, workers=1)):
+        with pytest.raises(ModelError, match=r"the default population value of variance\(y4\) lies beyond the "
+                                             r"model's own bound \(at most 0.1\) and is held at it"):
+            run_it()
+    # a bound the default stays within, and a start value on the bound (a population on the boundary, asked for)
+    assert [v["value"] for v in simulate(parse_model("factor f: y1, y2, y3, y4\nbound variance(y4) <= 0.6\n"), 50)
+            .population.values() if v["kind"] == "residual_variance"] == pytest.approx([0.51] * 4)
+    simulate(parse_model("factor f: y1, y2, y3, y4\nbound variance(y4) <= 0.1\nstart variance(y4) = 0.1\n"), 50)
+
+
 def test_the_power_report_says_what_the_plan_assumes_and_what_ordinal_items_change(tmp_path):
     # new-user trial: 'power' of a model whose items are all ordinal, fitted under a cluster design, gave the
     # normal-theory plan without a word about either
