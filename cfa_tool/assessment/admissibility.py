@@ -509,6 +509,22 @@ def counted_problems(per_replication: Iterable[tuple[str, ...]], shown: int = 4)
     return count, named + (f"; and {len(ranked) - shown} other kinds" if len(ranked) > shown else "")
 
 
+def not_admissible_sentence(counts: Iterable[tuple[int, int, str, str]], samples: str, kept_in: str) -> str:
+    """The one sentence every report of refitted samples (bootstrap resamples, samples of simulated cutoffs, power
+    simulations' replications) says of its converged samples whose solution is not admissible as a single fit would
+    judge it: each of ``counts`` is (how many, of how many converged, their problems named by
+    :func:`counted_problems`, where: '' or ' at N = 200', ' from the fitted model'), ``samples`` what they are
+    ('resamples'), ``kept_in`` the figures that keep them ('the intervals').  '' when no count is above 0."""
+    counts = [(n, converged, named, where) for n, converged, named, where in counts if n]
+    if not counts:
+        return ""
+    parts = [f"{n} of the {converged} converged {samples}{where} ({named or 'problems not recorded'})"
+             for n, converged, named, where in counts]
+    one = len(counts) == 1 and counts[0][0] == 1
+    return (f"{' and '.join(parts)} {'has' if one else 'have'} a solution that is not admissible, as a single fit "
+            f"would judge it; {'it is' if one else 'they are'} kept in {kept_in}")
+
+
 @dataclass(frozen=True)
 class _Labels:
     """What the assessment reads of a table's labels, laid out once per table."""

@@ -7,10 +7,11 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions
+from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions, not_admissible_sentence
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.language.names import names_text
 from cfa_tool.model.description import label_words, parameter_words
+from cfa_tool.options import Option
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
@@ -682,11 +683,11 @@ def bootstrap_report(boot) -> Report:
                             "Percentile upper", *([] if ordinal else ["BCa lower", "BCa upper"])], values))
     few = few_draws(boot.converged, 0.025, "converged resamples", "the interval ends" + (
         " and the Bollen-Stine p-value" if boot.bollen_stine_p is not None else ""))
-    kept = (f"{boot.inadmissible} of the {boot.converged} converged resamples have a solution that is not admissible, "
-            f"as a single fit would judge it ({boot.inadmissible_named}); they are kept in the intervals, which are of "
-            f"the estimates' sampling distribution, such solutions included",) if boot.inadmissible else ()
+    kept = not_admissible_sentence([(boot.inadmissible, boot.converged, boot.inadmissible_named, "")], "resamples",
+                                   "the intervals, which are of the estimates' sampling distribution, such solutions "
+                                   "included")
     return Report(ResultKind.BOOTSTRAP, f"Bootstrap of {result.model_name}", _fit_notice(result), tuple(lines), (table,),
-                  tuple(result.warnings), (HIGH_STAKES_NOTE,), warnings=kept + ((few,) if few else ()))
+                  tuple(result.warnings), (HIGH_STAKES_NOTE,), warnings=((kept,) if kept else ()) + ((few,) if few else ()))
 
 
 #: fewer draws than this beyond a percentile make it move with the seed (a rule of thumb of this program)
@@ -751,16 +752,15 @@ def cutoffs_report(cut) -> Report:
             lines += (f"That test rejected the fitted model at .05 in {100 * cut.correct_rejected:.1f}% of the "
                       f"{cut.converged_correct} samples drawn from it (nominal 5%).",)
     few = few_draws(cut.replications, 0.05, "samples", "the cutoffs")
-    judged = [f"{count} of the {converged} converged samples from the {whose} ({named})" for (count, named), converged, whose
-              in zip(cut.inadmissible, (cut.converged_correct, cut.converged_misspecified),
-                     ("fitted model", "misspecified model")) if count]
-    kept = (f"{' and '.join(judged)} have a solution that is not admissible, as a single fit would judge it; they are "
-            f"kept in the distributions the cutoffs come from",) if judged else ()
+    kept = not_admissible_sentence([(count, converged, named, f" from the {whose}") for (count, named), converged, whose
+                                    in zip(cut.inadmissible, (cut.converged_correct, cut.converged_misspecified),
+                                           ("fitted model", "misspecified model"))],
+                                   "samples", "the distributions the cutoffs come from")
     # the fit's notes on its rows (rows left out, rows with gaps) first, beside the notes on the estimation
     return Report(ResultKind.CUTOFFS, f"Model-specific fit cutoffs for {result.model_name}", _fit_notice(result), lines,
                   (table,), tuple(notes), ("These cutoffs hold for this model, sample size and kind of misspecification "
                                            "only; they are guides, not laws.", HIGH_STAKES_NOTE),
-                  warnings=tuple(result.warnings) + kept + ((few,) if few else ()))
+                  warnings=tuple(result.warnings) + ((kept,) if kept else ()) + ((few,) if few else ()))
 
 
 #: how a fit index on either side of a simulated cutoff reads (McNeish & Wolf 2023): the cutoff is a value that most
@@ -826,20 +826,14 @@ def _ordinal_power_lines(result) -> list[str]:
             f"{100 * result.model_rejected:.1f}% of the converged replications (nominal {100 * result.alpha:g}%)."]
 
 
-def _inadmissible_phrase(results) -> str:
-    """How many converged replications have a solution that is not admissible, per sample size; they are kept."""
-    counts = ", ".join(f"{r.inadmissible}" + (f" at N = {r.n_obs}" if len(results) > 1 else "") for r in results)
-    return (f"converged replications whose solution is not admissible (as a single fit would judge it): {counts}; they "
-            f"are included in the power, coverage and bias figures")
-
-
 def _inadmissible_cautions(results) -> tuple[str, ...]:
-    """A caution, first, per sample size at which some converged replications are not admissible, naming their
-    problems (assessment.admissibility.counted_problems)."""
-    return tuple(f"{r.inadmissible} of the {r.converged} converged replications" + (f" at N = {r.n_obs}" if len(
-        results) > 1 else "") + f" have a solution that is not admissible, as a single fit would judge it "
-        f"({getattr(r, 'inadmissible_named', '') or 'problems not recorded'}); they are included in the power, coverage "
-        f"and bias figures, which therefore describe such solutions too" for r in results if r.inadmissible)
+    """The caution, first, on the converged replications whose solution is not admissible at each sample size,
+    naming their problems (assessment.admissibility.not_admissible_sentence; said once per report)."""
+    said = not_admissible_sentence([(r.inadmissible, r.converged, getattr(r, "inadmissible_named", ""),
+                                     f" at N = {r.n_obs}" if len(results) > 1 else "") for r in results],
+                                   "replications", "the power, coverage and bias figures, which therefore describe "
+                                                   "such solutions too")
+    return (said,) if said else ()
 
 
 def not_carried_line(not_carried, power: bool = True) -> list[str]:
@@ -870,7 +864,7 @@ def montecarlo_report(result) -> Report:
     if hasattr(result, "results"):  # a power curve: several sample sizes
         return power_curve_report(result)
     lines = [f"{result.converged} of {result.replications} replications converged "
-             f"({100 * result.converged / result.replications:.1f}%); {_inadmissible_phrase([result])}."
+             f"({100 * result.converged / result.replications:.1f}%)."
              ] + _ordinal_power_lines(result)
     if result.defaulted:
         lines.append("Population values not given in the model file took defaults: "
@@ -906,7 +900,7 @@ def power_curve_report(curve) -> Report:
     """Power per parameter (rows) and sample size (columns), with each size's convergence."""
     first = curve.results[0]
     lines = ["Converged: " + ", ".join(f"{r.converged} of {r.replications} at N = {r.n_obs}" for r in curve.results)
-             + f"; {_inadmissible_phrase(curve.results)}."]
+             + "."]
     if first.ordinal:
         lines += [_ordinal_power_lines(first)[0], f"The {ADJUSTED_TEST} test rejected the true model at alpha "
                   f"{unit(first.alpha, 2)} in " + ", ".join(f"{100 * r.model_rejected:.1f}% at N = {r.n_obs}"
@@ -992,8 +986,8 @@ def population_parts(population) -> tuple[str, ReportTable]:
     entries = population.values()
     if population.fitted_from is not None:
         line = (f"Every value is an estimate of the earlier fit in {population.fitted_from}"
-                + (" but the thresholds, which cut equally likely categories (as many as --categories or the "
-                   "'answers' statement gives)" if population.equal_categories else "") + "; the items' means are "
+                + (f" but the thresholds, which cut equally likely categories (as many as {Option.CATEGORIES} or the "
+                   f"'answers' statement gives)" if population.equal_categories else "") + "; the items' means are "
                 f"{population.means_from.value}"
                 + (", and its values are in standard-deviation units (a correlation matrix without standard "
                    "deviations)" if population.standard_units else "")
@@ -1009,15 +1003,23 @@ def population_parts(population) -> tuple[str, ReportTable]:
     else:
         line = ("Defaults are set on the standardized metric (loadings .7, factor correlations .3, item variances "
                 "1) and converted to the model's scaling; values from 'start' statements replace them.")
+    def source(v: dict) -> str:  # a parameter held equal names the one whose value it shares
+        equal = v.get("equal_to")
+        return v["from"] if equal is None else \
+            f"{v['from']} to {parameter_words(equal['kind'], tuple(equal['variables']), article=False)}"
+
     rows = [[parameter_words(v["kind"], tuple(v["variables"]), article=False), num(v["value"]), num(v["standardized"]),
-             v["from"]] for v in entries]
-    values = [[v["kind"], names_text(v["variables"]), v["value"], v["standardized"], v["from"]] for v in entries]
+             source(v)] for v in entries]
+    values = [[v["kind"], names_text(v["variables"]), v["value"], v["standardized"], source(v)] for v in entries]
     words = ("From: earlier fit = its estimate" if population.fitted_from is not None else
              "From: default = the standardized default in the model's scaling; start = a 'start' statement")
     if population.fitted_from is not None and population.equal_categories:
         words += "; default = the thresholds of equally likely categories"
     if any(v["from"] in (ValueSource.FIXED.value, ValueSource.SCALE.value) for v in entries):
         words += "; fix = a 'fix' statement; scale (fixed) = fixed to give a factor its scale"
+    if any(v["from"] == ValueSource.EQUAL.value for v in entries):
+        words += "; equal to = held by an 'equal' statement at the value of the parameter named (its row says where "\
+                 "that value came from)"
     words += "."
     table = _table("population", "Population values used", [("Parameter", "l"), ("Value", "r"), ("Standardized", "r"),
                                                              ("From", "l")], rows, words,

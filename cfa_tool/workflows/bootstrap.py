@@ -114,27 +114,37 @@ class BootstrapResult(Presentable):
 
 
 def _replicate(tasks: list) -> list:
-    """(converged, values, standardized values, chi-square, failed, free parameters) of each task's resample,
-    refitted together; failed: a resample of rows with gaps whose saturated model cannot be estimated."""
-    spec, rows, names, _, start, design, gaps = tasks[0]
+    """(converged, values, standardized values, chi-square, failed, problems) of each task's resample, refitted
+    together; failed: a resample of rows with gaps whose saturated model cannot be estimated; problems: why a
+    converged resample's solution is not admissible, judged here in the worker as a single fit would judge it
+    (assessment.admissibility.replicated_problems; empty: admissible, or not judged, as the Bollen-Stine resamples
+    are not, whose task says ``judged`` false)."""
+    spec, rows, names, _, start, design, gaps, judged = tasks[0]
     if design is None and not gaps:  # resamples of complete rows: their moments in one stacked computation
         samples = resampled_moments(rows, names, [task[3] for task in tasks])
     else:
         samples = []
-        for _, rows, _, seed, _, design, _ in tasks:
+        for _, rows, _, seed, _, design, _, _ in tasks:
             try:
                 samples.append(_resample(rows, names, seed, design, gaps))
             except (DataError, EstimationError):  # too few answers of an item or pair, or EM without convergence
                 samples.append(None)
-    fits = iter(replicate_fits(spec, [m for m in samples if m is not None], start, fit_indices_wanted=False,
-                               full_information=gaps))
+    fits = replicate_fits(spec, [m for m in samples if m is not None], start, fit_indices_wanted=False,
+                          full_information=gaps)
+    problems = iter(())
+    converged = [f.theta for f in fits if f.converged]
+    if judged and converged:
+        table, model = model_structure(spec, None, gaps)
+        problems = iter(replicated_problems(table, model, np.array(converged)))
+    fits = iter(fits)
     out = []
     for m in samples:
         if m is None:
-            out.append((False, None, None, float("nan"), True, None))
+            out.append((False, None, None, float("nan"), True, ()))
         else:
             fit = next(fits)
-            out.append((fit.converged, fit.values, fit.standardized, fit.chi_square, False, fit.theta))
+            found = next(problems, ()) if fit.converged else ()
+            out.append((fit.converged, fit.values, fit.standardized, fit.chi_square, False, found))
     return out
 
 
@@ -434,7 +444,7 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     names = result.observed
     start = result.theta
     seeds = np.random.SeedSequence(seed).generate_state(2 * replications)
-    tasks = [(spec, moments_rows, names, int(s), start, design, gaps) for s in seeds[:replications]]
+    tasks = [(spec, moments_rows, names, int(s), start, design, gaps, True) for s in seeds[:replications]]
     draws = run_tasks(_replicate, tasks, workers, scheduler, progress, refits_together(REFITS_TOGETHER, len(start)),
                       batched=True)
     ok = [d for d in draws if d[0]]
@@ -453,15 +463,14 @@ def bootstrap_fit(result: FitResult, spec, rows: np.ndarray, replications: int =
     if bollen_stine is not False:
         transformed = bollen_stine_rows(moments_rows, result.implied_covariance,
                                         design.weights if design is not None else None)
-        btasks = [(spec, transformed, names, int(s), start, design, False) for s in seeds[replications:]]
+        btasks = [(spec, transformed, names, int(s), start, design, False, False) for s in seeds[replications:]]
         bdraws = [d for d in run_tasks(_replicate, btasks, workers, scheduler, progress,
                                          refits_together(REFITS_TOGETHER, len(start)), batched=True)
                   if d[0]]
         converged_bs = len(bdraws)
         if bdraws:
             p_bs = float(np.mean([d[3] >= result.fit.chi_square for d in bdraws]))
-    table, model = model_structure(spec, None, gaps)
-    count, named = counted_problems(replicated_problems(table, model, np.array([d[5] for d in ok])))
+    count, named = counted_problems(d[5] for d in ok)  # as each worker judged its resamples
     return BootstrapResult(fit=result, replications=replications, converged=len(ok), seed=seed,
                            intervals=intervals, bollen_stine_p=p_bs, bollen_stine_converged=converged_bs,
                            failed=sum(d[4] for d in draws), bollen_stine_not_computed=not_computed,

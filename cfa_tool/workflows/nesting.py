@@ -8,6 +8,7 @@ them exactly (minimum discrepancy zero) and R has more degrees of freedom.
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
+from typing import Callable
 
 from cfa_tool.numerics import distributions as dist
 
@@ -255,28 +256,30 @@ def scaling_at_restricted(restricted: FitResult, table, model, likelihood, start
     return robust_missing(likelihood, found.theta, saturated, df, None)[1]
 
 
-def _differ_by_a_bound(first: FitResult, second_spec: Spec, second: FitResult) -> str:
-    """Why two fits with the same degrees of freedom and the same free parameters are not tested when they differ only
-    by a bound that holds an estimate of one of them (an inequality restriction): that one is a restricted form of
-    the other, which no difference in degrees of freedom measures (the difference of chi-squares has none; its
-    distribution is a mixture, Self & Liang 1987).  Found numerically as nesting is (Bentler & Satorra 2010): the
-    second model without its bounds reproduces the first's implied moments.  '' when they do not so differ."""
+def same_degrees_of_freedom(first: FitResult, second: FitResult, reproduces: Callable[[], bool]) -> str:
+    """Why two fits with the same degrees of freedom are not tested, for every estimator (compare of continuous and of
+    ordinal items says it alike): when they have the same free parameters and differ only by a bound that holds an
+    estimate of one of them (an inequality restriction), that one is a restricted form of the other, which no
+    difference in degrees of freedom measures (the difference of chi-squares has none; its distribution is a
+    mixture, Self & Liang 1987).  Found numerically as nesting is (Bentler & Satorra 2010): ``reproduces()`` tells
+    whether the second model without its bounds reproduces the first's implied statistics (called only when a bound
+    holds an estimate of one model alone).  Otherwise the models are probably equivalent when their chi-squares
+    agree, and neither is a restricted form of the other when they do not."""
     from cfa_tool.assessment.admissibility import ProblemKind
 
-    if first.parameter_labels != second.parameter_labels:
-        return ""
     held = [(k, p) for k, r in enumerate((first, second)) for p in r.problems if p.kind is ProblemKind.ON_BOUND]
-    if not held or len({k for k, _ in held}) > 1:  # no bound holds an estimate, or bounds hold estimates of both
-        return ""
-    est = estimate(replace(second_spec, bounds=()), implied_moments(first), FitOptions(), start=second.theta)
-    if not est.converged or est.value > NESTING_TOLERANCE:
-        return ""
-    which = ("first", "second")[held[0][0]]
-    held_words = [w for _, p in held for w in p.parameter_words()]
-    return (f"the two models differ only by a bound, which holds {' and '.join(held_words)} at "
-            f"{'its bound' if len(held_words) == 1 else 'their bounds'} in the {which} model: the {which} is a "
-            f"restricted form of the other under an inequality restriction, which a test by degrees of freedom cannot "
-            f"judge, both having the same degrees of freedom")
+    # a bound holding estimates of one model only (bounds holding estimates of both are no restriction of one)
+    if first.parameter_labels == second.parameter_labels and held and len({k for k, _ in held}) == 1 and reproduces():
+        which = ("first", "second")[held[0][0]]
+        held_words = [w for _, p in held for w in p.parameter_words()]
+        return (f"the two models differ only by a bound, which holds {' and '.join(held_words)} at "
+                f"{'its bound' if len(held_words) == 1 else 'their bounds'} in the {which} model: the {which} is a "
+                f"restricted form of the other under an inequality restriction, which a test by degrees of freedom "
+                f"cannot judge, both having the same degrees of freedom")
+    same = abs(first.fit.chi_square - second.fit.chi_square) < 1e-6 * max(1.0, second.fit.chi_square)
+    return "the models have the same degrees of freedom" + (
+        " and the same chi-square: they are probably equivalent models" if same
+        else ", so neither is a restricted form of the other")
 
 
 def implied_moments(result: FitResult) -> list[tuple[str | None, SampleMoments]]:
@@ -297,12 +300,12 @@ def is_nested(restricted: FitResult, general_spec: Spec, general: FitResult) -> 
     if restricted.multigroup != general.multigroup:
         return False, "one model is fitted in groups and the other is not", None
     if restricted.fit.df == general.fit.df:
-        bound = _differ_by_a_bound(restricted, general_spec, general)
-        if bound:
-            return False, bound, None
-        same = abs(restricted.fit.chi_square - general.fit.chi_square) < 1e-6 * max(1.0, general.fit.chi_square)
-        return False, "the models have the same degrees of freedom" + (
-            " and the same chi-square: they are probably equivalent models" if same else ", so neither is a restricted form of the other"), None
+        def reproduces() -> bool:  # the general model without its bounds, fitted to the restricted one's moments
+            est = estimate(replace(general_spec, bounds=()), implied_moments(restricted), FitOptions(),
+                           start=general.theta)
+            return est.converged and est.value <= NESTING_TOLERANCE
+
+        return False, same_degrees_of_freedom(restricted, general, reproduces), None
     if restricted.fit.df < general.fit.df:
         return False, "the first model does not have more degrees of freedom than the second", None
     est = estimate(general_spec, implied_moments(restricted), FitOptions(), start=general.theta)

@@ -21,8 +21,7 @@ from cfa_tool.errors import OptionError, estimation_of
 from cfa_tool.estimation.optimizer import minimise
 from cfa_tool.method import DifferenceMethod
 from cfa_tool.pipeline.ordinal import assess_ordinal_groups, estimate_ordinal_groups, ordinal_difference
-from cfa_tool.workflows.nesting import NESTING_TOLERANCE, DifferenceTest
-
+from cfa_tool.workflows.nesting import NESTING_TOLERANCE, DifferenceTest, same_degrees_of_freedom
 
 
 def fit_ordinal_models(specs, complete, source, group, reference_group, fit_options, ordinal_items, method,
@@ -88,21 +87,34 @@ def statistic_order(names_from: tuple[str, ...], names_to: tuple[str, ...], n_th
     return np.asarray(thresholds + moments + pairs, dtype=int)
 
 
-def ordinal_difference_test(restricted, general, restricted_result, general_result, restricted_name: str,
-                            general_name: str) -> tuple[DifferenceTest | None, str]:
-    """The adjusted difference test when ``restricted`` is nested in ``general``; otherwise None and the reason."""
-    if restricted.df == general.df:
-        return None, "the models have the same degrees of freedom, so neither is a restricted form of the other"
-    if restricted.df < general.df:
-        return None, "the first model does not have more degrees of freedom than the second"
+def _general_at_restricted(restricted, general, bounded: bool = True):
+    """The general model fitted to the restricted model's implied thresholds and correlations (M10 of Satorra &
+    Bentler 2010), within the general model's bounds or (``bounded`` false) without them: (the search's result, the
+    general objective with those targets, the order that takes the restricted model's statistics to the general's)."""
     obj_r = restricted.objective
     names_r, names_g = restricted.table.observed, general.table.observed
     n_thr = {x: int(np.sum(obj_r.item_of == j)) for j, x in enumerate(names_r)}
     continuous = frozenset(names_r[j] for j in getattr(obj_r, "continuous", ()))
     order = statistic_order(names_r, names_g, n_thr, continuous)  # restricted's vector -> general's order
-    # the general model fitted to the restricted model's implied statistics (M10 of Satorra & Bentler 2010)
     target = general.objective.with_targets([obj_r.statistics(restricted.theta, g)[order] for g in range(len(obj_r.weights))])
-    opt = minimise(target.evaluate, target.value, general.theta, general.table.lower, general.table.upper)
+    lower, upper = ((general.table.lower, general.table.upper) if bounded
+                    else (np.full(general.table.n_free, -np.inf), np.full(general.table.n_free, np.inf)))
+    return minimise(target.evaluate, target.value, general.theta, lower, upper), target, order
+
+
+def ordinal_difference_test(restricted, general, restricted_result, general_result, restricted_name: str,
+                            general_name: str) -> tuple[DifferenceTest | None, str]:
+    """The adjusted difference test when ``restricted`` is nested in ``general``; otherwise None and the reason (for
+    the same degrees of freedom, the continuous path's rule and words: nesting.same_degrees_of_freedom)."""
+    if restricted.df == general.df:
+        def reproduces() -> bool:
+            opt = _general_at_restricted(restricted, general, bounded=False)[0]
+            return opt.converged and opt.value <= NESTING_TOLERANCE
+
+        return None, same_degrees_of_freedom(restricted_result, general_result, reproduces)
+    if restricted.df < general.df:
+        return None, "the first model does not have more degrees of freedom than the second"
+    opt, target, order = _general_at_restricted(restricted, general)
     if not opt.converged:
         return None, "the nesting check did not converge"
     if opt.value > NESTING_TOLERANCE:
@@ -112,7 +124,7 @@ def ordinal_difference_test(restricted, general, restricted_result, general_resu
     back = np.empty_like(order)
     back[order] = np.arange(len(order))  # general's order -> restricted's
     size = len(order)
-    columns = np.concatenate([g * size + back for g in range(len(obj_r.weights))])
+    columns = np.concatenate([g * size + back for g in range(len(restricted.objective.weights))])
     test = ordinal_difference(restricted, general, D_g[:, columns])
     return difference_record(test, restricted_name, general_name, restricted_result, general_result), ""
 

@@ -57,6 +57,7 @@ class ValueSource(Enum):
     FIXED = "fix"  # a 'fix' statement of the model file
     SCALE = "scale (fixed)"  # fixed to give a factor its scale
     EARLIER_FIT = "earlier fit"
+    EQUAL = "equal"  # an 'equal' statement holds it at the value of the parameter its row's 'equal_to' names
 
 
 @dataclass(frozen=True, eq=False)
@@ -90,8 +91,10 @@ class Population:
 
     def values(self) -> list[dict]:
         """Each parameter's population value, unstandardized and standardized, whether it was a default and
-        where it came from (a :class:`ValueSource` word), for the report and JSON: the free parameters and the
-        values the model fixes (its 'fix' statements and the values that set each factor's scale)."""
+        where it came from (a :class:`ValueSource` word), for the report and JSON: the free parameters, those an
+        'equal' statement holds equal to one of them (from 'equal', with ``equal_to``: the kind and variables of the
+        parameter whose row gives the shared value's source), and the values the model fixes (its 'fix' statements
+        and the values that set each factor's scale)."""
         from cfa_tool.assessment.standardized import standardize_entries
 
         model = StructuredModel(self.table)
@@ -99,7 +102,7 @@ class Population:
         codes, rows, cols = self.table.entry_arrays()
         standardized = standardize_entries(model.matrices(self.theta), codes, rows, cols, entries)[0]
         defaulted = set(self.defaulted)
-        out, seen = [], set()
+        out, first = [], {}  # each free parameter's first entry: (kind, variables)
         for e, par in enumerate(self.table.parameters):
             if not par.free:
                 if par.kind not in ("intercept", "mean", "threshold") and par.origin in ("user", "scale"):
@@ -107,9 +110,13 @@ class Population:
                     out.append({"kind": par.kind, "variables": list(par.variables), "value": float(entries[e]),
                                   "standardized": float(standardized[e]), "default": False, "from": source.value})
                 continue
-            if par.terms[0][0] in seen:
+            if par.terms[0][0] in first:
+                kind, variables = first[par.terms[0][0]]
+                out.append({"kind": par.kind, "variables": list(par.variables), "value": float(entries[e]),
+                            "standardized": float(standardized[e]), "default": False,
+                            "from": ValueSource.EQUAL.value, "equal_to": {"kind": kind, "variables": list(variables)}})
                 continue
-            seen.add(par.terms[0][0])
+            first[par.terms[0][0]] = (par.kind, par.variables)
             default = self.table.free_labels[par.terms[0][0]] in defaulted
             source = (ValueSource.EARLIER_FIT if self.fitted_from is not None else ValueSource.DEFAULT if default
                       else ValueSource.START)
@@ -381,7 +388,6 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     one_group_only(spec, "the simulation draws rows of one group")
     table = build_parameter_table(spec)
     impossible_fixed_values(table, spec.source)
-    starts_beyond_bounds(spec)
     model = StructuredModel(table)
     given = table.start.copy()
     kind_of: dict[int, str] = {}
@@ -407,13 +413,7 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
     if not np.isnan(given).all():
         theta = _defaults_beside_given(table, model, theta, np.isnan(given), target,
                                        standardized_entries(table, model, est.theta))
-    outside = np.flatnonzero((theta < table.lower) | (theta > table.upper)).tolist()
-    if outside:  # a default the model's own bounds forbid (a 'start' value beyond one is refused above)
-        k = outside[0]
-        raise ModelError(f"{spec.source}: the default population value {theta[k]:.3g} of {table.free_labels[k]} lies "
-                         f"outside the model's own bound ({_bound_words(table.lower[k], table.upper[k])}), so every "
-                         f"simulated sample would hold its estimate at the bound; give its population value with a "
-                         f"'start' statement within the bound")
+    beyond_bounds(spec, table, theta, given)
     sigma = model.implied(theta)
     if log_det_pd(sigma) is None:  # not positive definite, or not finite
         raise OptionError("the population values imply a covariance matrix that is not positive definite or not finite "
@@ -430,24 +430,48 @@ def _bound_words(lower: float | None, upper: float | None) -> str:
     return f"at least {lower:g}" if low else f"at most {upper:g}"
 
 
-def starts_beyond_bounds(spec: Spec) -> None:
-    """Refuse a 'start' value that a 'bound' statement of the same model forbids, naming both lines: in a
-    simulation the start values are the population's, and a population beyond the model's own bound holds every
-    replication's estimate at the bound (coverage 0, standard errors meaningless)."""
+def beyond_bounds(spec: Spec, table: ParameterTable, theta: np.ndarray, given: np.ndarray) -> None:
+    """Refuse a population value that a 'bound' statement of the same model forbids, whether a 'start' statement
+    gave it (``given``: the table's start values, NaN where none) or it took the default: in a simulation the
+    population is where every replication starts, and a population beyond the model's own bound holds every
+    replication's estimate at the bound (coverage 0, standard errors meaningless).  A 'start' value is named with
+    both lines where the two statements name the same parameter (else with the parameter they share through an
+    'equal' statement).  A default held at a bound is refused too: the fit that converts the standardized defaults
+    to the model's scaling stops there when the standardized default lies beyond it."""
+    with np.errstate(invalid="ignore"):  # infinite bounds are no bounds
+        held = np.isnan(given) & np.any([np.isfinite(limit) & (np.abs(theta - limit) <= 1e-8 * np.maximum(1.0, np.abs(limit)))
+                                         for limit in (table.lower, table.upper)], axis=0)
+    outside = np.flatnonzero((theta < table.lower) | (theta > table.upper) | held).tolist()
+    if not outside:
+        return
+    k = outside[0]
+    bound = _bound_words(table.lower[k], table.upper[k])
+    if held[k]:  # the conversion to the model's scaling stopped a default at the bound: its standardized default lies beyond
+        raise ModelError(f"{spec.source}: the default population value of {table.free_labels[k]} lies beyond the "
+                         f"model's own bound ({bound}) and is held at it ({theta[k]:.3g}), so the simulated samples "
+                         f"would hold its estimate at the bound; give its population value with a 'start' statement "
+                         f"within the bound")
+    if np.isnan(given[k]):
+        raise ModelError(f"{spec.source}: the default population value {theta[k]:.3g} of {table.free_labels[k]} lies "
+                         f"outside the model's own bound ({bound}), so every simulated sample would hold its estimate "
+                         f"at the bound; give its population value with a 'start' statement within the bound")
+    consequence = "every simulated sample would hold its estimate at the bound; change the start value or the bound"
     for setting in spec.starts:
         for ref in setting.refs:
-            for bound in spec.bounds:
-                for other in bound.refs:
+            for statement in spec.bounds:
+                for other in statement.refs:
                     if other.key() != ref.key() or (other.group is not None and ref.group is not None
                                                     and other.group != ref.group):
                         continue
-                    if ((bound.lower is not None and setting.value < bound.lower)
-                            or (bound.upper is not None and setting.value > bound.upper)):
+                    if ((statement.lower is not None and setting.value < statement.lower)
+                            or (statement.upper is not None and setting.value > statement.upper)):
                         raise ModelError(
                             f"the population value {setting.value:g} of {ref} (its 'start' value) lies outside the "
-                            f"model's own bound on it ({_bound_words(bound.lower, bound.upper)}, line "
-                            f"{other.location.line}): every simulated sample would hold its estimate at the bound; "
-                            f"change the start value or the bound", ref.location, spec.source_line(ref.location))
+                            f"model's own bound on it ({_bound_words(statement.lower, statement.upper)}, line "
+                            f"{other.location.line}): {consequence}", ref.location, spec.source_line(ref.location))
+    raise ModelError(f"{spec.source}: the population value {given[k]:g} of {table.free_labels[k]} (a 'start' value, "
+                     f"shared through an 'equal' statement) lies outside the model's own bound ({bound}) on a "
+                     f"parameter held equal to it: {consequence}")
 
 
 def simulate_rows(sigma: np.ndarray, n: int, rng: np.random.Generator, means: np.ndarray | None = None) -> np.ndarray:

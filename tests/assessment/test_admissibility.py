@@ -169,3 +169,18 @@ def test_a_bound_mark_names_the_parameter_it_belongs_to(hs_data):
     marks = {row[0]: row[-1] for row in visual.rows}
     assert marks["x2"] == "loading: held at a bound"
     assert marks["x3"] == ""
+
+
+def test_one_sentence_of_samples_whose_solution_is_not_admissible():
+    # the bootstrap, the cutoffs and the power simulation built this sentence three ways; one builder now
+    from cfa_tool.assessment.admissibility import not_admissible_sentence
+
+    assert not_admissible_sentence([(0, 200, "", "")], "resamples", "the intervals") == ""
+    assert not_admissible_sentence([(1, 200, "a negative residual variance in 1", "")], "resamples", "the intervals") == (
+        "1 of the 200 converged resamples (a negative residual variance in 1) has a solution that is not admissible, "
+        "as a single fit would judge it; it is kept in the intervals")
+    assert not_admissible_sentence([(3, 90, "x in 3", " at N = 60"), (0, 100, "", " at N = 120"),
+                                    (2, 100, "", " at N = 200")], "replications", "the figures") == (
+        "3 of the 90 converged replications at N = 60 (x in 3) and 2 of the 100 converged replications at N = 200 "
+        "(problems not recorded) have a solution that is not admissible, as a single fit would judge it; they are "
+        "kept in the figures")

@@ -195,6 +195,29 @@ def test_models_that_differ_only_by_a_bound_are_said_to_be_so(bounded_first):
     assert "probably equivalent models" in inactive.not_nested[0].reason
 
 
+@pytest.mark.parametrize("bounded_first", [False, True])
+def test_ordinal_models_that_differ_only_by_a_bound_are_said_to_be_so_as_continuous_ones(bounded_first):
+    # ordinal compare said "neither is a restricted form of the other" for models that differ only by a bound that
+    # holds an estimate; the continuous path's rule and words (nesting.same_degrees_of_freedom) now apply to both.
+    # Population loadings all .7 (invented, _rows), so the marker-scaled loading of y2 is near 1 and a bound at
+    # 0.7 holds it
+    cut = _rows(0.5).apply(lambda column: pd.cut(column, [-np.inf, -0.5, 0.5, np.inf], labels=False) + 1)
+    models = [TWO, TWO + "bound loading(a, y2) <= 0.7\n"]
+    result = compare(models[::-1] if bounded_first else models, cut, ordinal="all")
+    free = result.results[1 if bounded_first else 0]
+    assert next(e for e in free.estimates if e.variables == ("a", "y2")).estimate > 0.7 + 0.1
+    (pair,) = result.not_nested
+    text = " ".join(pair.reason.split())
+    which = "first" if bounded_first else "second"
+    assert (f"the two models differ only by a bound, which holds the loading of y2 on a" in text
+            and f"at its bound in the {which} model: the {which} is a restricted form of the other under an "
+                f"inequality restriction" in text)
+    assert "neither is a restricted form" not in text
+    # a bound that holds nothing: the same model, said as the continuous path says it
+    inactive = compare([TWO, TWO + "bound loading(a, y2) <= 5\n"], cut, ordinal="all")
+    assert "probably equivalent models" in inactive.not_nested[0].reason
+
+
 def test_the_boundary_is_explained_once_under_several_tables(data):
     # new-user trial: five one-row difference-test tables each repeated the same five-line note on the boundary
     from cfa_tool.reporting.workflow_tables import BOUNDARY_CAUTION

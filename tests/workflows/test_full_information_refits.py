@@ -131,8 +131,9 @@ def test_resamples_whose_saturated_model_cannot_be_estimated_are_counted_apart(g
     rows[4:, 5] = np.nan  # y6 answered by few rows: many resamples hold fewer than two of its answers
     rows = rows[~np.isnan(rows).all(axis=1)]
     spec = parse_model(TWO_FACTORS)
-    draws = _replicate([(spec, rows, NAMES, seed, start, None, True) for seed in range(6)])
+    draws = _replicate([(spec, rows, NAMES, seed, start, None, True, True) for seed in range(6)])
     assert any(d[4] for d in draws)
+    assert all(d[5] == () for d in draws if d[4])  # nothing judged of a resample that could not be analysed
     assert all(not d[0] and d[1] is None for d in draws if d[4])  # counted apart, never as converged
 
 

@@ -374,7 +374,13 @@ def test_power_simulation_counts_negative_variance_estimates():
     result = monte_carlo_power(spec, n, replications=400, seed=3, workers=1)
     expected = share * result.converged
     assert abs(result.inadmissible - expected) < 4 * np.sqrt(expected * (1 - share))
-    assert f"(as a single fit would judge it): {result.inadmissible};" in " ".join(report_of(result).lines[0].split())
+    report = report_of(result)
+    assert report.notice.lines[0].startswith(f"{result.inadmissible} of the {result.converged} converged replications "
+                                             f"(negative residual variance")
+    # said once: the notice, not again among the lines (power reports said it twice)
+    said = " ".join(result.summary(width=400).split())
+    assert said.count("not admissible, as a single fit would judge it") == 1
+    assert "not admissible" not in " ".join(report.lines)
     assert result.to_dict()["inadmissible"] == result.inadmissible
     assert monte_carlo_power(spec, 3000, replications=20, seed=3, workers=1).inadmissible == 0
     # held at a bound of zero instead ('bound variance(y4) >= 0'), the same samples' estimates are inadmissible as a
@@ -405,6 +411,40 @@ def test_a_population_beyond_the_models_own_bound_is_refused():
         simulate(spec, 50)
     population_from_spec(parse_model("factor f: y1, y2, y3, y4\nbound variance(y4) <= 0.1\n"
                                       "start variance(y4) = 0.05\n"))  # within the bound: taken
+
+
+def test_a_start_value_beyond_a_bound_on_a_parameter_held_equal_is_called_a_start_value():
+    # the start values were checked against the bounds twice (statement by statement, then the table), and the
+    # table's check called a start value shared through an 'equal' statement a default, advising a 'start' statement;
+    # one check now names what the model file gave
+    from cfa_tool.errors import ModelError
+
+    spec = parse_model("factor f: y1, y2, y3, y4\nequal variance(y3), variance(y4)\nbound variance(y4) <= 0.1\n"
+                       "start variance(y3) = 0.9\n")
+    for run_it in (lambda: simulate(spec, 50), lambda: monte_carlo_power(spec, 300, replications=5, workers=1)):
+        with pytest.raises(ModelError) as caught:
+            run_it()
+        said = str(caught.value)
+        assert "the population value 0.9 of variance(y3) (a 'start' value" in said and "at most 0.1" in said
+        assert "default" not in said and "give its population value with a 'start' statement" not in said
+
+
+def test_a_default_population_value_held_at_the_models_own_bound_is_refused():
+    # the standardized default residual variance of y4 is 1 - .7^2 = .51 (this module's documented defaults,
+    # computed by hand), beyond 'bound variance(y4) <= 0.1': the conversion to the model's scaling stopped it at 0.1
+    # and moved the other defaults (0.696 instead of .51), and every sample was drawn from a population on the
+    # boundary without a word; it is refused as a default beyond the bound is
+    from cfa_tool.errors import ModelError
+
+    spec = parse_model("factor f: y1, y2, y3, y4\nbound variance(y4) <= 0.1\n")
+    for run_it in (lambda: simulate(spec, 50), lambda: monte_carlo_power(spec, 300, replications=5, workers=1)):
+        with pytest.raises(ModelError, match=r"the default population value of variance\(y4\) lies beyond the "
+                                             r"model's own bound \(at most 0.1\) and is held at it"):
+            run_it()
+    # a bound the default stays within, and a start value on the bound (a population on the boundary, asked for)
+    assert [v["value"] for v in simulate(parse_model("factor f: y1, y2, y3, y4\nbound variance(y4) <= 0.6\n"), 50)
+            .population.values() if v["kind"] == "residual_variance"] == pytest.approx([0.51] * 4)
+    simulate(parse_model("factor f: y1, y2, y3, y4\nbound variance(y4) <= 0.1\nstart variance(y4) = 0.1\n"), 50)
 
 
 def test_the_power_report_says_what_the_plan_assumes_and_what_ordinal_items_change(tmp_path):
@@ -526,9 +566,23 @@ def test_bootstrap_counts_resamples_whose_solution_is_not_admissible():
     assert abs(bounded.inadmissible - free.inadmissible) <= 2
     assert free.inadmissible_named == f"negative residual variance (the residual variance of y4) in {free.inadmissible}"
     assert bounded.inadmissible_named == f"the residual variance of y4 held at a bound in {bounded.inadmissible}"
-    assert report_of(bounded).warnings[0].startswith(f"{bounded.inadmissible} of the {bounded.converged} converged "
-                                                     f"resamples have a solution that is not admissible")
+    assert report_of(bounded).warnings[0] == (
+        f"{bounded.inadmissible} of the {bounded.converged} converged resamples ({bounded.inadmissible_named}) have a "
+        f"solution that is not admissible, as a single fit would judge it; they are kept in the intervals, which are of "
+        f"the estimates' sampling distribution, such solutions included")
+    assert " ".join(bounded.summary(width=400).split()).count("not admissible, as a single fit would judge it") == 1
     assert bounded.to_dict()["result"]["inadmissible"] == bounded.inadmissible
+
+
+def test_bootstrap_workers_judge_admissibility_as_one_process_does():
+    # the resamples' admissibility is judged in the worker processes (as the ordinal path judges it): 1,000
+    # resamples in two batches on two processes give the count and the words of one process
+    model, data = NEAR_ZERO_MODEL, _near_zero_rows()
+    one = cfa_tool.bootstrap(model, data, replications=1000, seed=4, workers=1, bollen_stine=False)
+    two = cfa_tool.bootstrap(model, data, replications=1000, seed=4, workers=2, bollen_stine=False)
+    assert one.inadmissible > 0 and one.inadmissible_named.startswith("negative residual variance")
+    assert (two.converged, two.inadmissible, two.inadmissible_named) == (one.converged, one.inadmissible,
+                                                                        one.inadmissible_named)
 
 
 def test_cutoffs_count_samples_whose_solution_is_not_admissible():
@@ -546,6 +600,7 @@ def test_cutoffs_count_samples_whose_solution_is_not_admissible():
     assert named == f"the residual variance of y4 held at a bound in {count}"
     assert any(w.startswith(f"{count} of the {cut.converged_correct} converged samples from the fitted model")
                for w in report_of(cut).warnings)
+    assert " ".join(cut.summary(width=400).split()).count("not admissible, as a single fit would judge it") == 1
     assert cut.to_dict()["result"]["inadmissible_correct"] == count
 
 

@@ -132,3 +132,35 @@ def test_fixed_values_no_default_population_can_hold_are_named(tmp_path, capsys)
     assert code == 2 and len(err.strip().splitlines()) == 1
     assert "has the values fixed in the model file (covariance(f1, f2) = 5)" in err
     assert "not be identified" not in err and not (tmp_path / "rows.csv").exists()
+
+
+@pytest.mark.parametrize("command", ["simulate", "power-simulation"])
+def test_parameters_held_equal_are_listed_with_the_one_they_equal(command, tmp_path, capsys):
+    # the population table left out every parameter an 'equal' statement holds equal to an earlier one (loading of
+    # a3, residual variances of b2 and b3 here): each is listed with its value, marked as held equal to which
+    model = tmp_path / "m.cfa"
+    model.write_text("factor f1: a1, a2, a3\nfactor f2: b1, b2, b3\nequal loading(f1, a2), loading(f1, a3)\n"
+                     "equal variance(b1), variance(b2), variance(b3)\nstart loading(f1, a2) = 0.9\n")
+    saved = tmp_path / "pop.json"
+    rest = (["--output", tmp_path / "rows.csv"] if command == "simulate"
+            else ["--n", 100, "--replications", 4, "--workers", 1])
+    code, out, err = _run([command, model, *([] if command == "power-simulation" else ["--n", 50]), *rest,
+                           "--json", saved], capsys)
+    assert code == 0, err
+    result = json.loads(saved.read_text())
+    first = result["by_sample_size"][0] if "by_sample_size" in result else result
+    population = {(v["kind"], tuple(v["variables"])): v for v in first["population"]}
+    a3 = population[("loading", ("f1", "a3"))]
+    assert a3["from"] == "equal" and a3["equal_to"] == {"kind": "loading", "variables": ["f1", "a2"]}
+    assert a3["value"] == pytest.approx(0.9, abs=1e-12)  # the start value the equal statement shares
+    assert population[("loading", ("f1", "a2"))]["from"] == "start"
+    # the defaults (this module's documented ones): standardized loading .7 through a marker at 1 gives the factor
+    # variance .49 and the residual variance 1 - .49 = .51 of b1 (computed by hand), which b2 and b3 share
+    for item in ("b2", "b3"):
+        row = population[("residual_variance", (item,))]
+        assert row["from"] == "equal" and row["equal_to"] == {"kind": "residual_variance", "variables": ["b1"]}
+        assert row["value"] == pytest.approx(0.51, abs=1e-6)
+    assert population[("residual_variance", ("b1",))]["from"] == "default"
+    words = " ".join(out.split())
+    assert "loading of a3 on f1 0.900 0.630 equal to loading of a2 on f1" in words  # .9 x sqrt(.49) = .63 by hand
+    assert "equal to = held by an 'equal' statement at the value of the parameter named" in words

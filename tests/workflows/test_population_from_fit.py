@@ -210,5 +210,11 @@ def test_categories_with_a_continuous_fit_are_named_as_such(tmp_path):
     sources = {v["kind"]: v["from"] for v in simulated.population.values()}
     assert sources["threshold"] == "default" and sources["loading"] == "earlier fit"
     text = " ".join(simulated.summary().split())
-    assert "but the thresholds, which cut equally likely categories (as many as --categories or the 'answers' statement gives)" in text
+    # the option named for the interface that reads the report (a Python caller was told a flag)
+    assert "but the thresholds, which cut equally likely categories (as many as categories=... or the 'answers' statement gives)" in text
+    from cfa_tool.options import on_command_line
+
+    with on_command_line():
+        said = " ".join(simulated.summary().split())
+    assert "(as many as --categories or the 'answers' statement gives)" in said
     assert "default = the thresholds of equally likely categories" in text
