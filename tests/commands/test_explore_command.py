@@ -249,7 +249,7 @@ def test_text_columns_left_out_are_named(hs_data):
 
     frame = hs_data[ITEMS].assign(joined=np.where(hs_data.x1 > hs_data.x1.median(), "yes", "no"))
     said = " ".join(cfa_tool.explore(frame, replications=20).summary().split())
-    assert "Left out as text (not numbers): joined; answers written as words" in said
+    assert "Left out as text (not numbers): joined; answers recorded as words" in said
 
 
 def test_date_columns_left_out_are_named_as_dates(tmp_path, hs_data):
@@ -263,3 +263,19 @@ def test_date_columns_left_out_are_named_as_dates(tmp_path, hs_data):
     said = " ".join(cfa_tool.explore(str(path), replications=20).summary().split())
     assert "Left out as dates or times: visited." in said
     assert "Left out as text (not numbers): joined;" in said and "visited;" not in said
+
+
+@pytest.mark.parametrize("ordinal", [False, True])
+def test_rows_that_answered_no_item_are_named_as_the_file_numbers_them(tmp_path, hs_data, ordinal):
+    # the tenth session's note: explore said "1 of 302 rows answered none of the items" without naming the row,
+    # as fit names it (a totals line at a file's foot is the common case); the file's line is counted by hand
+    import cfa_tool
+
+    frame = (hs_data[ITEMS].round().clip(0, 9) if ordinal else hs_data[ITEMS]).assign(school=hs_data.school)
+    path = tmp_path / "footer.csv"
+    frame.to_csv(path, index=False)
+    with open(path, "a") as handle:
+        handle.write(",,,,,,,,,Total\n")  # line 303: the header is line 1, the 301 rows lines 2-302
+    result = cfa_tool.explore(str(path), items=ITEMS, replications=20, ordinal="all" if ordinal else None)
+    said = " ".join(result.summary().split())
+    assert "1 of 302 rows answered none of the items and was left out (row 303)." in said
