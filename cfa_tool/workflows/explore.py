@@ -290,7 +290,7 @@ def _numeric_columns(frame: pd.DataFrame) -> tuple[str, ...]:
                  pd.api.types.is_bool_dtype(frame[c]))
 
 
-#: words that name a column's part in the data other than answers (the sampling design, ids, groups): a column
+#: words that name a column's part in the data other than answers (the sampling design, ids, groups, who answered): a column
 #: whose name is one of them, or has one as a word of its own ('final_weight', 'respondent_id'; 'w1' has none), is
 #: left out of explore's default items
 COLUMN_ROLE_WORDS = {
@@ -299,6 +299,8 @@ COLUMN_ROLE_WORDS = {
     "strata": ("stratum", "strata"),
     "ids": ("id", "ids", "identifier"),
     "groups": ("group", "grp"),
+    # who answered (new-user trial s11: a clinic's age column was explored as an item)
+    "the respondents' particulars": ("age", "sex", "gender", "dob", "birthyear"),
     # the records a survey platform adds to an export: how far and how long a respondent answered, where from
     "survey records": ("progress", "duration", "latitude", "longitude", "locationlatitude", "locationlongitude"),
 }
@@ -432,8 +434,8 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
                f"department's do; the items share their answer scale's labels): "
                f"{', '.join(printable(c) for c in coded)} (name them in --items to explore them)."
                if coded else "")
-            + (" Left out by their names, as columns of the sampling design, ids, groups or the survey's "
-               "records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
+            + (" Left out by their names, as columns of the sampling design, ids, groups, the respondents' "
+               "particulars or the survey's records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
                + " (name them in --items to explore them)." if roles else "")
             + _text_columns_phrase(frame, numeric + worded, codings))
     return chosen, note, worded

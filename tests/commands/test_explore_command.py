@@ -200,10 +200,17 @@ def test_design_id_and_group_columns_are_not_taken_for_items_and_are_named(hs_da
                      replications=10)
     assert result.to_dict()["items"] == [f"x{i}" for i in range(1, 10)]
     note = next(n for n in result.notes if n.startswith("Items:"))
-    assert ("Left out by their names, as columns of the sampling design, ids, groups or the survey's records rather "
-            "than answers: final_weight (weights), psu (clusters), grp (groups) (name them in --items to explore them).") in note
+    assert ("Left out by their names, as columns of the sampling design, ids, groups, the respondents' particulars or "
+            "the survey's records rather than answers: final_weight (weights), psu (clusters), grp (groups) (name them "
+            "in --items to explore them).") in note
     assert [column_role(n) for n in ("w", "w1", "wt 2023", "respondent_id", "stratum", "wlb2")] == \
         ["weights", None, "weights", "ids", "strata", None]
+    # new-user trial s11: a clinic's age column was explored as an item
+    assert [column_role(n) for n in ("age", "Age_years", "gender", "stage", "page3")] == \
+        ["the respondents' particulars"] * 3 + [None, None]
+    aged = explore(data[[f"x{i}" for i in range(1, 10)]].assign(age=rng.integers(18, 90, len(hs_data))), factors=3,
+                   replications=10)
+    assert aged.to_dict()["items"] == [f"x{i}" for i in range(1, 10)]
     named = explore(data, items="x1..x9, final_weight", factors=3, replications=10)  # named: explored
     assert "final_weight" in named.to_dict()["items"]
 

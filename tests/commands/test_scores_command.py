@@ -299,3 +299,19 @@ def test_rows_without_scores_name_only_the_factors_that_lost_rows():
     assert _unscored_counts(("visual", "textual"), (2, 5)) == "visual 2, textual 5"
     assert _unscored_counts(("visual", "textual"), (3, 3)) == "3 for each factor"
     assert _unscored_counts(("visual",), (3,)) == "visual 3"
+
+
+def test_the_quality_note_says_which_methods_were_written_and_how_to_ask_for_the_others(tmp_path, model_file, capsys,
+                                                                                         hs_data):
+    # new-user trial s11: "methods marked with * are written to the file: regression*, Bartlett,
+    # correlation-preserving" read as if all three were written
+    import cfa_tool
+
+    code, out, _ = _run(["scores", model_file, "--data", HS_FILE, "--output", tmp_path / "s.csv"], capsys)
+    said = " ".join(out.split())
+    assert code == 0 and "marked with" not in said
+    assert ("Written to the file: regression; shown for comparison, not written (ask for them with --method): "
+            "Bartlett and correlation-preserving.") in said
+    both = " ".join(cfa_tool.scores(THREE_FACTORS, hs_data, methods=["regression", "bartlett"]).summary().split())
+    assert ("Written to the file: regression and Bartlett; shown for comparison, not written (ask for them with "
+            "methods=...): correlation-preserving.") in both
