@@ -315,3 +315,46 @@ def test_the_quality_note_says_which_methods_were_written_and_how_to_ask_for_the
     both = " ".join(cfa_tool.scores(THREE_FACTORS, hs_data, methods=["regression", "bartlett"]).summary().split())
     assert ("Written to the file: regression and Bartlett; shown for comparison, not written (ask for them with "
             "methods=...): correlation-preserving.") in both
+
+
+def test_rows_scored_from_some_of_a_factors_items_are_said_to_be_less_precise(hs_data):
+    # new-user trial s11: patients scored from 2-3 of 5 items had SEs of .45-.54 against .37 and nothing said so.
+    # Check values: the regression score's error variance given the items a row answered, diag(Phi - Phi L_o'
+    # Sigma_oo^-1 L_o Phi) for the answered items o (the posterior variance of the factors given the answers under
+    # a normal factor model; Bartholomew, Knott & Moustaki 2011, ch. 2), computed here with numpy from the fit's
+    # estimates; the note's range must be that of the rows with gaps.
+    import re
+
+    import cfa_tool
+
+    data = hs_data.copy()
+    rng = np.random.default_rng(11)
+    gone = rng.choice(len(data), 40, replace=False)
+    data.loc[data.index[gone[:20]], "x1"] = np.nan
+    data.loc[data.index[gone[20:]], ["x2", "x3"]] = np.nan  # one item of visual left for these rows
+    result = cfa_tool.scores(THREE_FACTORS, data)
+    note = next(n for n in result.notes if n.startswith("Rows that answered some but not all"))
+    est = result.fit.to_dict()["estimates"]
+    L, phi, theta = np.zeros((9, 3)), np.zeros((3, 3)), np.zeros(9)
+    for row in est:
+        a, b = (row["variables"] * 2)[:2]  # a variance names one variable
+        if row["kind"] == "loading":
+            L[ITEMS.index(b), FACTORS.index(a)] = row["estimate"]
+        elif row["kind"] in ("factor_variance", "factor_covariance"):
+            phi[FACTORS.index(a), FACTORS.index(b)] = phi[FACTORS.index(b), FACTORS.index(a)] = row["estimate"]
+        elif row["kind"] == "residual_variance":
+            theta[ITEMS.index(a)] = row["estimate"]
+    sigma = L @ phi @ L.T + np.diag(theta)
+
+    def se(answered: list[int]) -> float:
+        Lo = L[answered]
+        post = phi - phi @ Lo.T @ np.linalg.solve(sigma[np.ix_(answered, answered)], Lo @ phi)
+        return float(np.sqrt(post[0, 0]))
+
+    all_but_x1 = [i for i in range(9) if i != 0]
+    only_x1 = [i for i in range(9) if i not in (1, 2)]
+    low, high = sorted([se(all_but_x1), se(only_x1)])
+    shown = re.search(r"visual: 40 rows, SE (\S+) to (\S+) against (\S+) with every item", note)
+    assert shown, note
+    assert [float(x) for x in shown.groups()] == [round(low, 2), round(high, 2), round(se(list(range(9))), 2)]
+    assert "textual" not in note and "speed" not in note  # their items were all answered
