@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import math
 
-from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
+from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
 from cfa_tool.assessment.fit_indices import GUIDE_VALUES
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
@@ -385,6 +385,8 @@ def _capital(text: str) -> str:
 
 #: what pairwise present rows assume, at the end of the rows' phrase (inside parentheses: the citation after a comma)
 _PAIRWISE_ASSUMPTION = f", which assumes that {MISSING_COMPLETELY_AT_RANDOM}, Little & Rubin, 2002"
+#: new-user trial s11: the fit and invariance paragraphs said every answer was used without the assumption it rests on
+_FULL_INFORMATION_ASSUMPTION = f", which assumes that {MISSING_AT_RANDOM}, Little & Rubin, 2002"
 
 
 def _pairs_with_gaps(result) -> bool:
@@ -439,8 +441,8 @@ def _sample_phrase(result) -> str:
     low = _lowest_coverage(result) if full_information else None
     if low is not None:
         floor = math.floor(1000 * low) / 10  # never rounded up: 99.96% is not 'every row'
-        text += (f"; every answer of every row was used, including rows with missing answers (each item answered in "
-                 f"at least {floor:g}% of the rows)")
+        text += (f"; every answer of every row was used, including rows with missing answers{_FULL_INFORMATION_ASSUMPTION}"
+                 f"; each item was answered in at least {floor:g}% of the rows")
     pairs = data.pair_range
     if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
@@ -831,7 +833,7 @@ def _comparison_rows(comparison) -> str:
     """The rows every model of a comparison was fitted to, and how rows with gaps were handled."""
     n, dropped = comparison.n_obs, comparison.rows_dropped
     if comparison.missing is MissingData.FULL_INFORMATION:
-        how = "every answer of every row was used, including rows with missing answers"
+        how = "every answer of every row was used, including rows with missing answers" + _FULL_INFORMATION_ASSUMPTION
     elif comparison.missing is MissingData.PAIRWISE:
         how = ("every answer was used: each item's thresholds from the rows that answered it and each correlation "
                "from the rows that answered both items" + (_PAIRWISE_ASSUMPTION if _pairs_with_gaps(comparison.results[0])
