@@ -142,6 +142,20 @@ def _items_answered(model, rows: np.ndarray, at: np.ndarray, n: int) -> np.ndarr
     return out
 
 
+def _in_file_order(table: pd.DataFrame, data) -> pd.DataFrame:
+    """The scores of a file's rows with an empty line for each blank row the reader skipped between them (hostile
+    trial s11: a blank sheet row dropped from the scores file shifted every later score onto the row above when
+    the file was pasted beside the sheet).  A file's rows are indexed by their place in the file
+    (data.moments.file_rows_index), so a gap in the index is a blank row; a data frame's scores keep its own index
+    (they join to its rows)."""
+    if isinstance(data, pd.DataFrame) or len(table) < 2 or not pd.api.types.is_integer_dtype(table.index):
+        return table
+    index = table.index
+    if index.is_monotonic_increasing and index[-1] - index[0] + 1 > len(index):
+        return table.reindex(pd.RangeIndex(index[0], index[-1] + 1))
+    return table
+
+
 def partly_answered_note(model, answered: np.ndarray, method: ScoreMethod, errors: np.ndarray) -> list[str]:
     """The note on the scored rows that answered some but not all of a factor's items (``answered``: see
     :func:`_items_answered`; ``errors``: the standard errors of ``method``'s scores at the same places): their
@@ -398,7 +412,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                       bool(standard_errors or ordinal_items), answered)
     columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
                                        len(read_index))
-    table = pd.DataFrame(columns, index=read_index)  # a data frame's own index: scores join to its rows
+    table = _in_file_order(pd.DataFrame(columns, index=read_index), data)  # a data frame's own index: scores join
     if id_name is not None and id_name in list(table.columns)[1:]:
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
@@ -596,7 +610,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
-    return ScoreResult(result, chosen, tuple(factors), id_name, pd.DataFrame(columns, index=read_frame.index),
+    return ScoreResult(result, chosen, tuple(factors), id_name, _in_file_order(pd.DataFrame(columns, index=read_frame.index),
+                                                                               data),
                        tuple(quality),
                        unscored, with_errors, tuple(notes), source, tuple(warnings))
 

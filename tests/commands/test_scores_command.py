@@ -358,3 +358,34 @@ def test_rows_scored_from_some_of_a_factors_items_are_said_to_be_less_precise(hs
     assert shown, note
     assert [float(x) for x in shown.groups()] == [round(low, 2), round(high, 2), round(se(list(range(9))), 2)]
     assert "textual" not in note and "speed" not in note  # their items were all answered
+
+
+@pytest.mark.parametrize("from_fit", [False, True])
+def test_a_blank_row_of_the_file_keeps_an_empty_line_so_the_scores_line_up(tmp_path, model_file, capsys, from_fit):
+    # hostile trial s11: a blank sheet row was dropped from scores.csv, so the file pasted beside the sheet gave every
+    # later row the score of the row below it.  Check: the scores of the file without the blank row, line by line.
+    import openpyxl
+
+    raw = pd.read_csv(HS_FILE)
+    book = openpyxl.Workbook()
+    sheet = book.active
+    sheet.append(list(raw.columns))
+    for k, row in enumerate(raw.itertuples(index=False)):
+        if k == 9:
+            sheet.append([])  # sheet row 11 is blank
+        sheet.append(list(row))
+    book.save(tmp_path / "blank.xlsx")
+    raw.to_excel(tmp_path / "plain.xlsx", index=False)
+    extra = []
+    if from_fit:
+        assert _run(["fit", model_file, "--data", tmp_path / "plain.xlsx", "--json", tmp_path / "fit.json"],
+                    capsys)[0] == 0
+        extra = ["--from-fit", tmp_path / "fit.json"]
+    assert _run(["scores", model_file, "--data", tmp_path / "blank.xlsx", "--output", tmp_path / "b.csv"] + extra,
+                capsys)[0] == 0
+    assert _run(["scores", model_file, "--data", tmp_path / "plain.xlsx", "--output", tmp_path / "p.csv"] + extra,
+                capsys)[0] == 0
+    blank = (tmp_path / "b.csv").read_text().splitlines()
+    plain = (tmp_path / "p.csv").read_text().splitlines()
+    assert len(blank) == len(plain) + 1 and set(blank[10]) <= {","}  # line 11, as the sheet's row 11
+    assert blank[:10] + blank[11:] == plain
