@@ -959,6 +959,8 @@ def _step_figures(step) -> str:
     t = step.versus_previous
     if t is None or t.not_computed:
         return "no difference statistic"
+    if step.untested:
+        return "0 degrees of freedom"
     text = f"{CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}"
     if not step.result.method.ordinal:  # the adjusted indices of ordinal fits are not compared between models
         from cfa_tool.workflows.invariance import CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER
@@ -979,6 +981,8 @@ def _held(step, basis: str = "") -> str:
         return "could not be judged: its estimation did not converge"
     if not step.result.admissible:
         return "did not hold: its solution was not admissible"
+    if step.untested:
+        return "was not tested: its model adds no equality to the step before"
     if step.holds and basis:
         return f"cannot be read as held, though it met its test: it rests on {basis}"
     return "held" if step.holds else "did not hold"
@@ -994,7 +998,7 @@ def _basis(steps, k: int) -> str:
     if failed is None:
         return ""
     why = ("did not converge" if not failed.result.converged else "was not admissible" if not failed.result.admissible
-           else "did not hold")
+           else "was not tested" if failed.untested else "did not hold")
     return f"the {failed.level} step, which {why}"
 
 
@@ -1076,6 +1080,9 @@ def invariance_paragraph(result, levels) -> str:
             full = step.full_test
             with_all = (f"{CHI}({full.df_difference}) = {full.chi_square_difference:.2f}, {_p(full.p_value)}"
                         if full is not None and not full.not_computed else "no difference statistic")
+            if step.full_result is not None and step.full_result.converged and not step.full_result.admissible:
+                found = _list([p.phrase(quoted=True) for p in step.full_result.problems if p.kind.inadmissible])
+                with_all += f"; its solution was not admissible: {found}"
             freed = _list([parameter_words(f.kind, f.variables, quoted=True) for f in step.freed])
             state = ("still did not hold" if not step.holds and step.result.admissible else
                      "held" if step.holds and not basis else "met its test" if step.holds else _held(step, basis))
