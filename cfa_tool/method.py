@@ -74,6 +74,9 @@ ORDINAL_FIT_CHANGE = ("with ordinal items each model's CFI and RMSEA come from i
 #: threshold and correlation from the rows that answered its items are consistent when answers are missing completely
 #: at random (Little & Rubin 2002), while full-information estimation needs them only missing at random
 MISSING_COMPLETELY_AT_RANDOM = "answers are missing completely at random"
+#: what full-information ML assumes (Rubin 1976; Little & Rubin 2002): whether an answer is missing may depend on the
+#: answers a row gave, not on the missing answer itself
+MISSING_AT_RANDOM = "answers are missing at random"
 
 
 class FitTest(Choice):

@@ -173,6 +173,7 @@ class Option(enum.Enum):
     POPULATION_FROM = ("--population-from", "population")
     DECIDE_BY = ("--decide-by", "decide_by")
     MAX_ITERATIONS = ("--max-iterations", "max_iterations")
+    SCORE_METHODS = ("--method", "methods", None, True)
 
     def __init__(self, flag: str, keyword: str, switch: str | None = None, listed: bool = False) -> None:
         self.flag = flag

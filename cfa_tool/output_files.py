@@ -406,8 +406,11 @@ def check_table_folder(option: str, folder: str | Path, files: dict[str, str],
                               f"choose an empty folder, or move that file")
 
 
-def write_table_folder(option: str, folder: str | Path, files: dict[str, str], inputs: list[str | Path | None]) -> None:
-    """Write ``files`` (name -> text) into ``folder``; nothing is written unless every file can be."""
+def write_table_folder(option: str, folder: str | Path, files: dict[str, str],
+                       inputs: list[str | Path | None]) -> tuple[str, ...]:
+    """Write ``files`` (name -> text) into ``folder``; nothing is written unless every file can be.  Returns the
+    names of the files an earlier run of this tool wrote there (unchanged since) that this run did not write: they
+    are left in place (never removed: this run did not create them), and the caller says so."""
     path = Path(folder)
     check_table_folder(option, folder, files, inputs)
     try:
@@ -420,6 +423,12 @@ def write_table_folder(option: str, folder: str | Path, files: dict[str, str], i
         _replace_atomically(path / name, data, option)
         written[name] = _checksum(data)
     _record(path, written, option)
+    try:
+        earlier = _read_record(path, option)
+    except OptionError:
+        return ()
+    return tuple(sorted(name for name in earlier if name not in files and (path / name).is_file()
+                        and _written_here(path / name, option)))
 
 
 def _checksum(data: bytes) -> str:

@@ -131,8 +131,16 @@ def write_tables(args: argparse.Namespace, files: dict[str, str], inputs: list[s
         return []
     from cfa_tool.output_files import write_table_folder
 
-    write_table_folder("--tables", args.tables, files, [i for i in inputs if i])
-    return [f"Tables written to {args.tables}/ as CSV and LaTeX"]
+    from cfa_tool.reporting.text_formats import TABLE_CONTENTS
+
+    earlier = write_table_folder("--tables", args.tables, files, [i for i in inputs if i])
+    said = [f"Tables written to {args.tables}/ as CSV and LaTeX ({TABLE_CONTENTS} lists them)"]
+    if earlier:
+        shown_names = ", ".join(earlier[:6]) + (f" and {len(earlier) - 6} more" if len(earlier) > 6 else "")
+        said.append(f"Caution: {args.tables}/ also holds {len(earlier)} files an earlier run wrote and this one did not "
+                    f"({shown_names}); they belong to another report: delete them, or write into an empty folder, so "
+                    f"that tables of two analyses are not mixed")
+    return said
 
 
 def show(args: argparse.Namespace, report, written: list[str], terminal: bool = True) -> None:

@@ -26,7 +26,7 @@ from cfa_tool.language.names import writable, written_name
 
 DEFAULT_THRESHOLD = 0.30  # common practice
 MIN_ITEMS = 3  # items a drafted factor needs (see the module's docstring)
-_LINE = 96
+_LINE = 78
 
 
 @dataclass(frozen=True)
@@ -107,6 +107,13 @@ def _statement(head: str, items: list[str], prefix: str = "") -> list[str]:
     return lines
 
 
+def _comment(text: str, indent: str = "") -> list[str]:
+    """``text`` as comment lines of at most _LINE characters ('# ' and ``indent`` before each; later lines indented
+    two more), so that the draft printed on an 80-column terminal is copied without lines broken out of a comment."""
+    return textwrap.wrap(text, _LINE, initial_indent="# " + indent, subsequent_indent="# " + indent + "  ",
+                         break_long_words=False, break_on_hyphens=False)
+
+
 def draft_model(names: tuple[str, ...], pattern: np.ndarray, threshold: float = DEFAULT_THRESHOLD,
                 ordinal: tuple[str, ...] = (), description: str = "",
                 given_names: tuple[str, ...] | None = None) -> DraftModel:
@@ -141,14 +148,15 @@ def draft_model(names: tuple[str, ...], pattern: np.ndarray, threshold: float = 
     cut = _two(threshold)
     about = printable(description).strip()
     heading = "Draft model from an exploratory factor analysis" + (f": {about}" if about else "") + "."
-    lines = ["# " + line for line in textwrap.wrap(heading, _LINE)]
-    lines += ["# The factor names are placeholders: rename each factor for what its items have in common."
-              if given_names is None else "# The factor names are those of the target.",
-             "# Each item is on the factor of its largest pattern loading (in absolute value); items are listed by",
-             "# loading, largest first, so the first item, which sets the factor's scale, loads most strongly.",
-             f"# Items with loadings of {cut} or more on several factors, or on none, are listed at the end for you",
-             "# to decide. Fit this model to data other than those explored, or its fit will look better than it is.",
-             ""]
+    lines = _comment(heading)
+    lines += _comment("The factor names are placeholders: rename each factor for what its items have in common."
+                      if given_names is None else "The factor names are those of the target.")
+    lines += _comment("Each item is on the factor of its largest pattern loading (in absolute value); items are listed "
+                      "by loading, largest first, so the first item, which sets the factor's scale, loads most "
+                      f"strongly. Items with loadings of {cut} or more on several factors, or on none, are listed at "
+                      "the end for you to decide. Fit this model to data other than those explored, or its fit will "
+                      "look better than it is.")
+    lines.append("")
     for k in range(m):
         group = members[k]
         items = [written_names[item.item] for item in group]
@@ -156,19 +164,18 @@ def draft_model(names: tuple[str, ...], pattern: np.ndarray, threshold: float = 
         if written[k]:
             lines.extend(_statement(f"factor {labels[k]}:", items))
             if negative:
-                lines.append(f"# {labels[k]}: negative loading{'s' if len(negative) > 1 else ''} for "
-                             f"{', '.join(negative)} (reverse-worded item{'s' if len(negative) > 1 else ''}?)")
+                lines += _comment(f"{labels[k]}: negative loading{'s' if len(negative) > 1 else ''} for "
+                                  f"{', '.join(negative)} (reverse-worded item{'s' if len(negative) > 1 else ''}?)")
         elif group:
             why = ("one item cannot identify a factor" if len(group) == 1 else
                    "a factor of two items is identified only through its correlations with other factors and often "
                    "fails as inadmissible on new data")
-            lines.extend("# " + line for line in textwrap.wrap(
-                f"{labels[k]} is left out: it has {len(group)} item{'s' if len(group) > 1 else ''} "
-                f"({', '.join(items)}), fewer than {MIN_ITEMS}; {why}. Decide whether to add items or drop it.",
-                _LINE - 2))
+            lines += _comment(f"{labels[k]} is left out: it has {len(group)} item{'s' if len(group) > 1 else ''} "
+                              f"({', '.join(items)}), fewer than {MIN_ITEMS}; {why}. Decide whether to add items or "
+                              f"drop it.")
             lines.extend(_statement(f"factor {labels[k]}:", items, prefix="# "))
         else:
-            lines.append(f"# {labels[k]} has no item of its own (each item's largest loading is on another factor)")
+            lines += _comment(f"{labels[k]} has no item of its own (each item's largest loading is on another factor)")
     undecided = [item for item in placements if item.placement is not Placement.ON_FACTOR]
     if undecided:
         lines += ["", "# For you to decide (not in the model above):"]
@@ -176,10 +183,11 @@ def draft_model(names: tuple[str, ...], pattern: np.ndarray, threshold: float = 
             row = pattern[names.index(item.item)]
             if item.placement is Placement.SEVERAL_LOADINGS:
                 loads = ", ".join(f"{labels[k]} {_two(row[k])}" for k in item.salient)
-                lines.append(f"#   {written_names[item.item]}: {loads} (loadings of {cut} or more on several factors)")
+                lines += _comment(f"{written_names[item.item]}: {loads} (loadings of {cut} or more on several factors)",
+                                  "  ")
             else:
-                lines.append(f"#   {written_names[item.item]}: largest loading {_two(item.loading)} on {labels[item.factor]} "
-                             f"(no loading of {cut} or more)")
+                lines += _comment(f"{written_names[item.item]}: largest loading {_two(item.loading)} on "
+                                  f"{labels[item.factor]} (no loading of {cut} or more)", "  ")
     placed = [item.item for k, group in enumerate(members) if written[k] for item in group]
     declared = [written_names[name] for name in names if name in set(ordinal) and name in set(placed)]
     if declared:

@@ -16,7 +16,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from cfa_tool.method import (MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
+from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
 from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
@@ -409,6 +409,8 @@ def _capital(text: str) -> str:
 
 #: what pairwise present rows assume, at the end of the rows' phrase (inside parentheses: the citation after a comma)
 _PAIRWISE_ASSUMPTION = f", which assumes that {MISSING_COMPLETELY_AT_RANDOM}, Little & Rubin, 2002"
+#: new-user trial s11: the fit and invariance paragraphs said every answer was used without the assumption it rests on
+_FULL_INFORMATION_ASSUMPTION = f", which assumes that {MISSING_AT_RANDOM}, Little & Rubin, 2002"
 
 
 def _pairs_with_gaps(result) -> bool:
@@ -463,8 +465,8 @@ def _sample_phrase(result) -> str:
     low = _lowest_coverage(result) if full_information else None
     if low is not None:
         floor = math.floor(1000 * low) / 10  # never rounded up: 99.96% is not 'every row'
-        text += (f"; every answer of every row was used, including rows with missing answers (each item answered in "
-                 f"at least {floor:g}% of the rows)")
+        text += (f"; every answer of every row was used, including rows with missing answers{_FULL_INFORMATION_ASSUMPTION}"
+                 f"; each item was answered in at least {floor:g}% of the rows")
     pairs = data.pair_range
     if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
@@ -858,7 +860,7 @@ def _comparison_rows(comparison) -> str:
     """The rows every model of a comparison was fitted to, and how rows with gaps were handled."""
     n, dropped = comparison.n_obs, comparison.rows_dropped
     if comparison.missing is MissingData.FULL_INFORMATION:
-        how = "every answer of every row was used, including rows with missing answers"
+        how = "every answer of every row was used, including rows with missing answers" + _FULL_INFORMATION_ASSUMPTION
     elif comparison.missing is MissingData.PAIRWISE:
         how = ("every answer was used: each item's thresholds from the rows that answered it and each correlation "
                "from the rows that answered both items" + (_PAIRWISE_ASSUMPTION if _pairs_with_gaps(comparison.results[0])
@@ -984,6 +986,8 @@ def _step_figures(step) -> str:
     t = step.versus_previous
     if t is None or t.not_computed:
         return "no difference statistic"
+    if step.untested:
+        return "0 degrees of freedom"
     text = f"{CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}"
     if not step.result.method.ordinal:  # the adjusted indices of ordinal fits are not compared between models
         from cfa_tool.workflows.invariance import CFI_GUIDE, RMSEA_GUIDE, SRMR_GUIDE, SRMR_GUIDE_LATER
@@ -1004,6 +1008,8 @@ def _held(step, basis: str = "") -> str:
         return "could not be judged: its estimation did not converge"
     if not step.result.admissible:
         return "did not hold: its solution was not admissible"
+    if step.untested:
+        return "was not tested: its model adds no equality to the step before"
     if step.holds and basis:
         return f"cannot be read as held, though it met its test: it rests on {basis}"
     return "held" if step.holds else "did not hold"
@@ -1019,7 +1025,7 @@ def _basis(steps, k: int) -> str:
     if failed is None:
         return ""
     why = ("did not converge" if not failed.result.converged else "was not admissible" if not failed.result.admissible
-           else "did not hold")
+           else "was not tested" if failed.untested else "did not hold")
     return f"the {failed.level} step, which {why}"
 
 
@@ -1104,6 +1110,9 @@ def invariance_paragraph(result, levels) -> str:
             full = step.full_test
             with_all = (f"{CHI}({full.df_difference}) = {full.chi_square_difference:.2f}, {_p(full.p_value)}"
                         if full is not None and not full.not_computed else "no difference statistic")
+            if step.full_result is not None and step.full_result.converged and not step.full_result.admissible:
+                found = _list([p.phrase(quoted=True) for p in step.full_result.problems if p.kind.inadmissible])
+                with_all += f"; its solution was not admissible: {found}"
             freed = _list([parameter_words(f.kind, f.variables, quoted=True) for f in step.freed])
             state = ("still did not hold" if not step.holds and step.result.admissible else
                      "held" if step.holds and not basis else "met its test" if step.holds else _held(step, basis))

@@ -6,7 +6,8 @@ from __future__ import annotations
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.remedies import Remedy
 from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
-from cfa_tool.reporting.numbers import num, unit
+from cfa_tool.options import Option
+from cfa_tool.reporting.numbers import num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
 from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, LINEAR_METHODS, ScoreMethod
@@ -93,8 +94,11 @@ def quality_table(result, k: int) -> ReportTable:
         note = ("Determinacy: the correlation of the regression scores with their factor (Grice 2001). Then the "
                 "reliability of each method's scores (Corr.-preserving: correlation-preserving scores): the squared correlation of "
                 "the score with its factor (Beauducel 2011). Values "
-                "under the fitted model with every item answered; methods marked with * are written to the file: "
-                + ", ".join(METHOD_LABELS[m] + ("*" if m in result.methods else "") for m in LINEAR_METHODS) + "."
+                "under the fitted model with every item answered. Written to the file: "
+                + word_list(METHOD_LABELS[m] for m in LINEAR_METHODS if m in result.methods)
+                + (f"; shown for comparison, not written (ask for them with {Option.SCORE_METHODS}): "
+                   + word_list(unwritten) if (unwritten := [METHOD_LABELS[m] for m in LINEAR_METHODS
+                                                             if m not in result.methods]) else "") + "."
                 + _one_item_sentence(result.fit))
     title = "Quality of the scores" + _where(q) + ("" if ordinal else ": determinacy, and reliability by method")
     return _table(f"score_quality_{k}", title, cols, rows, note,

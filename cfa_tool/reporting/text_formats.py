@@ -135,4 +135,12 @@ def report_table_files(report) -> dict[str, str]:
     for table in tables:
         files[f"{table.key}.csv"] = csv_table(table)
         files[f"{table.key}.tex"] = latex_table(table)
+    # which table is in which file, and of what report (hostile trial s11: the CSV files carry no title, and tables
+    # of two models in one folder could not be told apart)
+    files[TABLE_CONTENTS] = "\n".join([report.title, *report.lines, ""] + [
+        f"{table.key}.csv, {table.key}.tex: {table.title}" for table in tables]) + "\n"
     return files
+
+
+#: the file of a --tables folder that lists its tables with their titles and the report they belong to
+TABLE_CONTENTS = "contents.txt"

@@ -433,8 +433,9 @@ def invariance_report(result) -> Report:
         level_values.append([label, *values, _admissible_cell(step.result)])
         if step.result.converged and not step.result.admissible:
             flagged.append(len(levels) - 1)
-        verdict = (TEST_MET if step.holds and unsound_basis(result.steps, k) is not None
-                   else _verdict(step.holds, step.result)) + (" *" if step.conditional else "")
+        verdict = ("not tested (0 df)" if step.untested else TEST_MET if step.holds and
+                   unsound_basis(result.steps, k) is not None else _verdict(step.holds, step.result)) \
+            + (" *" if step.conditional else "")
         if step.versus_previous is not None:
             cells, values = _step_cells(step.versus_previous, step.delta_srmr, step.level)
             steps.append([label, *cells, verdict])

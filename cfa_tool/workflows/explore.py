@@ -290,7 +290,7 @@ def _numeric_columns(frame: pd.DataFrame) -> tuple[str, ...]:
                  pd.api.types.is_bool_dtype(frame[c]))
 
 
-#: words that name a column's part in the data other than answers (the sampling design, ids, groups): a column
+#: words that name a column's part in the data other than answers (the sampling design, ids, groups, who answered): a column
 #: whose name is one of them, or has one as a word of its own ('final_weight', 'respondent_id'; 'w1' has none), is
 #: left out of explore's default items
 COLUMN_ROLE_WORDS = {
@@ -299,6 +299,8 @@ COLUMN_ROLE_WORDS = {
     "strata": ("stratum", "strata"),
     "ids": ("id", "ids", "identifier"),
     "groups": ("group", "grp"),
+    # who answered (new-user trial s11: a clinic's age column was explored as an item)
+    "the respondents' particulars": ("age", "sex", "gender", "dob", "birthyear"),
     # the records a survey platform adds to an export: how far and how long a respondent answered, where from
     "survey records": ("progress", "duration", "latitude", "longitude", "locationlatitude", "locationlongitude"),
 }
@@ -336,13 +338,18 @@ def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: t
         said += (" Left out as text holding none of the answers file's words (--answers): "
                  + ", ".join(unlisted) + (f" and {len(text) - 10} more" if len(text) > 10 else "") + ".")
     elif text:
-        from cfa_tool.data.answer_scales import suggested_statement
-
-        statement = next((s for s in (suggested_statement(frame[c].to_numpy(dtype=object)) for c in text) if s), None)
-        said += (f" Left out as text (not numbers): {listed(text)}; answers written as words (yes/no, agree) are "
-                 f"explored with an answers file (--answers FILE) whose 'answers' statement gives each word its code"
-                 + (f", such as the line: {statement}" if statement else "") + ".")
+        said += f" Left out as text (not numbers): {listed(text)}; {_answers_file_hint(frame, text)}."
     return said
+
+
+def _answers_file_hint(frame: pd.DataFrame, text: list) -> str:
+    """How answers recorded as words are explored (an answers file), with the statement the words of the text
+    columns ``text`` suggest when they come from a common scale (data.answer_scales.suggested_statement)."""
+    from cfa_tool.data.answer_scales import suggested_statement
+
+    statement = next((s for s in (suggested_statement(frame[c].to_numpy(dtype=object)) for c in text) if s), None)
+    return ("answers recorded as words (yes/no, agree) are explored with an answers file (--answers FILE) whose "
+            "'answers' statement gives each word its code" + (f", such as the line: {statement}" if statement else ""))
 
 
 def _first_unlisted(column: pd.Series, coding) -> tuple[object, int | None]:
@@ -427,8 +434,8 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
                f"department's do; the items share their answer scale's labels): "
                f"{', '.join(printable(c) for c in coded)} (name them in --items to explore them)."
                if coded else "")
-            + (" Left out by their names, as columns of the sampling design, ids, groups or the survey's "
-               "records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
+            + (" Left out by their names, as columns of the sampling design, ids, groups, the respondents' "
+               "particulars or the survey's records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
                + " (name them in --items to explore them)." if roles else "")
             + _text_columns_phrase(frame, numeric + worded, codings))
     return chosen, note, worded
@@ -443,16 +450,12 @@ def _refuse_too_few(chosen: tuple[str, ...], scan, codings: tuple) -> None:
              f"({', '.join(printable(c) for c in chosen)})" if chosen else "none of its columns holds numbers")
     hint = scan.sheet_hint() or "; name the items with --items"
     if not codings and not scan.sheet_hint():
-        from cfa_tool.data.answer_scales import suggested_statement
-
         frame = scan.frame
         numeric = _numeric_columns(frame)
         text = [c for c in frame.columns if str(c) not in numeric and frame[c].dtype.kind not in "mM"
                 and frame[c].notna().any()]
-        statement = next((s for s in (suggested_statement(frame[c].to_numpy(dtype=object)) for c in text) if s), None)
         if text:
-            hint += ("; answers recorded as words are read with an answers file (--answers FILE) whose 'answers' "
-                     "statement gives each word its code" + (f", such as the line: {statement}" if statement else ""))
+            hint += "; " + _answers_file_hint(frame, text)
     raise DataError(f"{scan.source}: {found}, and an exploratory factor analysis needs at least 3 items" + hint)
 
 
@@ -702,22 +705,33 @@ def _correlations(frame, names, source, ordinal_items, notes):
             notes.append(f"Rows with gaps are kept: each polychoric correlation comes from the rows that answered both "
                          f"items ({int(counts.min())} to {int(counts.max())} rows per pair), as fit computes them; N is "
                          f"the {moments.n_obs} rows with at least one answer.")
-        left = len(frame) - moments.n_obs
-        if left:
-            notes.append(f"{left} rows answered none of the items and were left out.")
+        if len(frame) > moments.n_obs:
+            notes.append(_empty_rows_note(frame, frame[list(names)].isna().to_numpy().all(axis=1)))
         return from_ordinal_moments(moments)
     values = _numeric_rows(frame, names, source)
     absent = np.isnan(values)
-    empty = int(absent.all(axis=1).sum())  # rows that answered none of the items: left out, as fit leaves them out
-    gaps = int(absent.any(axis=1).sum()) - empty
+    empty = absent.all(axis=1)  # rows that answered none of the items: left out, as fit leaves them out
+    gaps = int(absent.any(axis=1).sum()) - int(empty.sum())
     missing = "full-information" if gaps else "listwise"
     moments = sample_moments(frame, names, source, missing=missing)
     if gaps:
-        notes.append(f"{gaps} rows miss some answers; the correlations are the maximum-likelihood (EM) estimates from "
-                     f"every answer, and N is the {moments.n_obs} rows with at least one answer.")
-    if empty:
-        notes.append(f"{empty} of {len(values)} rows answered none of the items and were left out.")
+        notes.append(f"{gaps} {'row misses' if gaps == 1 else 'rows miss'} some answers; the correlations are the "
+                     f"maximum-likelihood (EM) estimates from every answer, and N is the {moments.n_obs} rows with at "
+                     f"least one answer.")
+    if empty.any():
+        notes.append(_empty_rows_note(frame, empty))
     return from_sample_moments(moments)
+
+
+def _empty_rows_note(frame: pd.DataFrame, empty: np.ndarray) -> str:
+    """The note on the rows (``empty``: a mask of ``frame``'s rows) that answered none of the items, named as the
+    file numbers them (data.kept_rows.rows_listed), as fit names them."""
+    from cfa_tool.data.kept_rows import rows_listed
+    from cfa_tool.data.moments import row_numbers
+
+    n = int(empty.sum())
+    return (f"{n} of {len(frame)} {'row' if len(frame) == 1 else 'rows'} answered none of the items and "
+            f"{'was' if n == 1 else 'were'} left out ({rows_listed(row_numbers(frame)[empty])}).")
 
 
 def _confirm(exploration: Exploration, halves, seed: int, source: str, statements: tuple[str, ...]) -> SplitHalves:

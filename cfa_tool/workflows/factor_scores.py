@@ -142,6 +142,46 @@ def _items_answered(model, rows: np.ndarray, at: np.ndarray, n: int) -> np.ndarr
     return out
 
 
+def _in_file_order(table: pd.DataFrame, data) -> pd.DataFrame:
+    """The scores of a file's rows with an empty line for each blank row the reader skipped between them (hostile
+    trial s11: a blank sheet row dropped from the scores file shifted every later score onto the row above when
+    the file was pasted beside the sheet).  A file's rows are indexed by their place in the file
+    (data.moments.file_rows_index), so a gap in the index is a blank row; a data frame's scores keep its own index
+    (they join to its rows)."""
+    if isinstance(data, pd.DataFrame) or len(table) < 2 or not pd.api.types.is_integer_dtype(table.index):
+        return table
+    index = table.index
+    if index.is_monotonic_increasing and index[-1] - index[0] + 1 > len(index):
+        return table.reindex(pd.RangeIndex(index[0], index[-1] + 1))
+    return table
+
+
+def partly_answered_note(model, answered: np.ndarray, method: ScoreMethod, errors: np.ndarray) -> list[str]:
+    """The note on the scored rows that answered some but not all of a factor's items (``answered``: see
+    :func:`_items_answered`; ``errors``: the standard errors of ``method``'s scores at the same places): their
+    scores rest on fewer items and are less precise than the figures for rows that answered every item, with the
+    range of their standard errors beside the typical one of complete rows (new-user trial s11: 36 patients scored
+    from 2-3 of 5 items had SEs of .45-.54 against .37, said nowhere)."""
+    full = model.reach.sum(axis=0)
+    parts = []
+    for f, name in enumerate(model.factors):
+        some = (answered[:, f] > 0) & (answered[:, f] < full[f]) & ~np.isnan(errors[:, f])
+        if not some.any():
+            continue
+        every = (answered[:, f] == full[f]) & ~np.isnan(errors[:, f])
+        se = errors[some, f]
+        typical = f" against {float(np.median(errors[every, f])):.2f} with every item" if every.any() else ""
+        parts.append(f"{printable(name)}: {int(some.sum())} {'row' if some.sum() == 1 else 'rows'}, SE "
+                     + (f"{se.min():.2f}" if np.isclose(se.min(), se.max(), atol=5e-3) else
+                        f"{se.min():.2f} to {se.max():.2f}") + typical)
+    if not parts:
+        return []
+    what = "posterior SD" if method is ScoreMethod.EXPECTED_A_POSTERIORI else f"{method.value} score's SE"
+    return [f"Rows that answered some but not all of a factor's items are scored from the items they answered (the "
+            f"_items_answered columns): their scores are less precise than the precision table says, which is for "
+            f"rows that answered every item ({'; '.join(parts)}; SE: the {what})."]
+
+
 def column_name(factor: str, method: ScoreMethod, what: str = "") -> str:
     """Output column of a factor's score by a method: e.g. 'visual_regression', 'visual_regression_se'."""
     word = {ScoreMethod.EXPECTED_A_POSTERIORI: "posterior_mean"}.get(method, method.value.replace("-", "_"))
@@ -372,12 +412,13 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                       bool(standard_errors or ordinal_items), answered)
     columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
                                        len(read_index))
-    table = pd.DataFrame(columns, index=read_index)  # a data frame's own index: scores join to its rows
+    table = _in_file_order(pd.DataFrame(columns, index=read_index), data)  # a data frame's own index: scores join
     if id_name is not None and id_name in list(table.columns)[1:]:
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered) if ordinal_items else _linear_quality(models, spec)
-    extra = duplicate_note(ids, "id column" if id_column is not None else "row names")
+    extra = duplicate_note(ids, "id column" if id_column is not None else "row names") + partly_answered_note(
+        models[0].base if ordinal_items else models[0], answered, chosen[0], errors[chosen[0]])
     if ids is not None and id_column is None:
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
                         f"the header); give {Option.ID_COLUMN.given('COLUMN')} to name the rows by another column.")
@@ -552,7 +593,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
             scored_problems.append(Problem(ProblemKind.ANSWERS_BEYOND_FITTED, (), None, text, advice))
     if scored_problems:
         result = replace(result, problems=tuple(scored_problems) + tuple(result.problems))
-    notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names")
+    notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names") \
+        + partly_answered_note(base, answered, chosen[0], errors[chosen[0]])
     if group is not None:
         from cfa_tool.data.labels import label_notes
 
@@ -568,7 +610,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
-    return ScoreResult(result, chosen, tuple(factors), id_name, pd.DataFrame(columns, index=read_frame.index),
+    return ScoreResult(result, chosen, tuple(factors), id_name, _in_file_order(pd.DataFrame(columns, index=read_frame.index),
+                                                                               data),
                        tuple(quality),
                        unscored, with_errors, tuple(notes), source, tuple(warnings))
 

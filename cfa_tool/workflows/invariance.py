@@ -24,6 +24,8 @@ from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ord
                                       with_missing_reading, with_rows_read)
 from cfa_tool.assessment.admissibility import ProblemKind, group_size_problems
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
+from cfa_tool.model.description import parameter_words
+from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.plain import journal_decimal
 from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
 from cfa_tool import options as check
@@ -66,6 +68,14 @@ STOP_OFF = "no search was asked for"
 STOP_NOTHING_LEFT = ("no equality left that may be freed (one loading and one intercept per factor stay equal, so "
                      "that factor scales and means remain comparable)")
 STOP_CAP = "the search reached its limit of {cap} freed parameters at this step"
+#: hostile trial s11: the search freed loadings whose score tests were 0.76 and 0.56, and freed every equality of a
+#: step until it had nothing left to test (0 df) and called it held.  A parameter is freed only while its score test
+#: is significant at the steps' level, as specification searches for partial invariance do (Yoon & Millsap 2007)
+STOP_NOT_SIGNIFICANT = ("no equality's score test is significant at the level the steps are tested at, so these data "
+                        "point to none to free")
+STOP_LAST_EQUALITY = "freeing another equality would leave the step nothing to test"
+#: a step whose model adds no equality to the one before (every parameter of its class declared or freed): untested
+STOP_UNTESTED = "the step adds no equality to test (0 degrees of freedom), so it cannot show that invariance holds"
 #: The configural model is judged on its own fit by these indices, against the report's guide values
 #: (assessment.fit_indices.FIT_GUIDES: CFI at least .95, RMSEA at most .06, SRMR at most .08)
 CONFIGURAL_INDICES = ("cfi", "rmsea", "srmr")
@@ -114,6 +124,12 @@ class InvarianceStep:
     declared: tuple[ParameterRef, ...] = ()
 
     @property
+    def untested(self) -> bool:
+        """Whether the step adds no equality to the step before (its difference test has 0 degrees of freedom): it
+        is then not tested and never held."""
+        return self.versus_previous is not None and self.versus_previous.df_difference == 0
+
+    @property
     def partial(self) -> bool:
         """Whether the partial-invariance search freed parameters at this step."""
         return bool(self.freed)
@@ -127,7 +143,9 @@ class InvarianceStep:
         vs = _test_dict(self.versus_previous, self.delta_srmr)
         full = None
         if self.partial and self.full_result is not None:
-            full = {"fit": clean(self.full_result.fit.to_dict()) if self.full_result.fit is not None else None,
+            full = {"admissible": self.full_result.admissible,
+                    "problems": [p.to_dict() for p in self.full_result.problems],
+                    "fit": clean(self.full_result.fit.to_dict()) if self.full_result.fit is not None else None,
                     "robust": clean(self.full_result.robust.to_dict()) if self.full_result.robust is not None else None,
                     "versus_previous": _test_dict(self.full_test, None), "holds": self.full_holds}
         return {
@@ -139,6 +157,7 @@ class InvarianceStep:
             "robust": clean(self.result.robust.to_dict()) if self.result.robust is not None else None,
             "versus_previous": vs,
             "holds": self.holds,
+            "tested": not self.untested,
             "judged_by": "its own fit (CFI, RMSEA and SRMR guide values)" if self.versus_previous is None
             else "the difference test against the step before",
             "conditional_on_a_rejected_step": self.conditional,
@@ -345,8 +364,9 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
             # an inadmissible solution (negative variances, ...) cannot show that invariance holds, whatever its fit;
             # the search goes on (a misfitting equality can itself push a variance below zero)
-            holds = result.admissible and (configural_fits(result) if test is None
-                                           else _step_holds(rule, test, alpha, result, previous[1], level))
+            untested = test is not None and test.df_difference == 0
+            holds = result.admissible and not untested and (
+                configural_fits(result) if test is None else _step_holds(rule, test, alpha, result, previous[1], level))
             if full is None:
                 full = (result, test, holds)
             with threads:
@@ -355,10 +375,16 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                            labels)
             if holds:
                 stopped = STOP_HOLDS
+            elif untested:
+                stopped = STOP_UNTESTED
             elif partial == "none":
                 stopped = STOP_OFF
             elif not culprits:
                 stopped = STOP_NOTHING_LEFT
+            elif test is not None and test.df_difference <= 1:
+                stopped = STOP_LAST_EQUALITY
+            elif not dist.chi2_sf(culprits[0].index, 1) < alpha:  # the largest score test: not significant
+                stopped = STOP_NOT_SIGNIFICANT
             elif len(freed_here) >= MAX_FREED_PER_STEP:
                 stopped = STOP_CAP.format(cap=MAX_FREED_PER_STEP)
             if progress is not None:
@@ -402,12 +428,22 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                             f"{step.level} step: with so many exceptions the step is hardly invariant, and the freed "
                             f"set is likely to fit these data by chance")
         if step.level != "configural" and not step.holds and (
-                step.stopped in (STOP_NOTHING_LEFT, STOP_CAP.format(cap=MAX_FREED_PER_STEP))):
+                step.stopped in (STOP_NOTHING_LEFT, STOP_CAP.format(cap=MAX_FREED_PER_STEP), STOP_NOT_SIGNIFICANT,
+                                 STOP_LAST_EQUALITY, STOP_UNTESTED)):
             warnings.append(f"the search at the {step.level} step stopped without the step holding: {step.stopped}")
     # rows left out for a gap: a caution first when many were (after an inadmissible solution's), else a note
     left_out, left_notes = _rows_left_out(steps[0].result)
     warnings[:0] = left_out
     notes = list(notes) + left_notes
+    for step in reversed(steps):  # a model the search left behind: its impossible solution is said too
+        full_result = step.full_result
+        if step.partial and full_result is not None and full_result.converged and not full_result.admissible:
+            warnings.insert(0, f"the {step.level} model with every equality held has a solution that is not admissible ("
+                               + "; ".join(p.phrase() for p in full_result.problems if p.kind.inadmissible)
+                               + "); the partial search then freed "
+                               + ", ".join(parameter_words(f.kind, f.variables, f.group) for f in step.freed)
+                               + ": read the freed parameters as a way around an impossible solution, not as evidence "
+                               "that only they differ across groups")
     inadmissible = [s for s in steps if s.result.converged and not s.result.admissible]
     for step in reversed(inadmissible):  # problems first: an impossible solution outranks every other note
         warnings.insert(0, f"the {step.level} model's solution is not admissible ("

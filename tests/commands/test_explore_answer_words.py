@@ -175,8 +175,10 @@ def test_rows_that_answered_no_item_are_said_to_be_left_out_not_to_miss_some_ans
     data.to_csv(path, index=False)
     result = cfa_tool.explore(str(path), items=ITEMS)
     assert result.exploration.data.n_obs == 301 - 40
-    assert "40 of 301 rows answered none of the items and were left out." in result.notes
-    assert any(n.startswith("1 rows miss some answers;") for n in result.notes)
+    # the rows are lines 2-41 of the file (the header is line 1)
+    assert "40 of 301 rows answered none of the items and were left out (rows 2, 3, 4, 5, 6 and 35 more)." \
+        in result.notes
+    assert any(n.startswith("1 row misses some answers;") for n in result.notes)
 
 
 def test_numbers_beside_words_draft_a_statement_for_the_words_items_only(words_file, coded, tmp_path, capsys):

@@ -200,10 +200,17 @@ def test_design_id_and_group_columns_are_not_taken_for_items_and_are_named(hs_da
                      replications=10)
     assert result.to_dict()["items"] == [f"x{i}" for i in range(1, 10)]
     note = next(n for n in result.notes if n.startswith("Items:"))
-    assert ("Left out by their names, as columns of the sampling design, ids, groups or the survey's records rather "
-            "than answers: final_weight (weights), psu (clusters), grp (groups) (name them in --items to explore them).") in note
+    assert ("Left out by their names, as columns of the sampling design, ids, groups, the respondents' particulars or "
+            "the survey's records rather than answers: final_weight (weights), psu (clusters), grp (groups) (name them "
+            "in --items to explore them).") in note
     assert [column_role(n) for n in ("w", "w1", "wt 2023", "respondent_id", "stratum", "wlb2")] == \
         ["weights", None, "weights", "ids", "strata", None]
+    # new-user trial s11: a clinic's age column was explored as an item
+    assert [column_role(n) for n in ("age", "Age_years", "gender", "stage", "page3")] == \
+        ["the respondents' particulars"] * 3 + [None, None]
+    aged = explore(data[[f"x{i}" for i in range(1, 10)]].assign(age=rng.integers(18, 90, len(hs_data))), factors=3,
+                   replications=10)
+    assert aged.to_dict()["items"] == [f"x{i}" for i in range(1, 10)]
     named = explore(data, items="x1..x9, final_weight", factors=3, replications=10)  # named: explored
     assert "final_weight" in named.to_dict()["items"]
 
@@ -249,7 +256,7 @@ def test_text_columns_left_out_are_named(hs_data):
 
     frame = hs_data[ITEMS].assign(joined=np.where(hs_data.x1 > hs_data.x1.median(), "yes", "no"))
     said = " ".join(cfa_tool.explore(frame, replications=20).summary().split())
-    assert "Left out as text (not numbers): joined; answers written as words" in said
+    assert "Left out as text (not numbers): joined; answers recorded as words" in said
 
 
 def test_date_columns_left_out_are_named_as_dates(tmp_path, hs_data):
@@ -263,3 +270,19 @@ def test_date_columns_left_out_are_named_as_dates(tmp_path, hs_data):
     said = " ".join(cfa_tool.explore(str(path), replications=20).summary().split())
     assert "Left out as dates or times: visited." in said
     assert "Left out as text (not numbers): joined;" in said and "visited;" not in said
+
+
+@pytest.mark.parametrize("ordinal", [False, True])
+def test_rows_that_answered_no_item_are_named_as_the_file_numbers_them(tmp_path, hs_data, ordinal):
+    # the tenth session's note: explore said "1 of 302 rows answered none of the items" without naming the row,
+    # as fit names it (a totals line at a file's foot is the common case); the file's line is counted by hand
+    import cfa_tool
+
+    frame = (hs_data[ITEMS].round().clip(0, 9) if ordinal else hs_data[ITEMS]).assign(school=hs_data.school)
+    path = tmp_path / "footer.csv"
+    frame.to_csv(path, index=False)
+    with open(path, "a") as handle:
+        handle.write(",,,,,,,,,Total\n")  # line 303: the header is line 1, the 301 rows lines 2-302
+    result = cfa_tool.explore(str(path), items=ITEMS, replications=20, ordinal="all" if ordinal else None)
+    said = " ".join(result.summary().split())
+    assert "1 of 302 rows answered none of the items and was left out (row 303)." in said

@@ -299,3 +299,93 @@ def test_rows_without_scores_name_only_the_factors_that_lost_rows():
     assert _unscored_counts(("visual", "textual"), (2, 5)) == "visual 2, textual 5"
     assert _unscored_counts(("visual", "textual"), (3, 3)) == "3 for each factor"
     assert _unscored_counts(("visual",), (3,)) == "visual 3"
+
+
+def test_the_quality_note_says_which_methods_were_written_and_how_to_ask_for_the_others(tmp_path, model_file, capsys,
+                                                                                         hs_data):
+    # new-user trial s11: "methods marked with * are written to the file: regression*, Bartlett,
+    # correlation-preserving" read as if all three were written
+    import cfa_tool
+
+    code, out, _ = _run(["scores", model_file, "--data", HS_FILE, "--output", tmp_path / "s.csv"], capsys)
+    said = " ".join(out.split())
+    assert code == 0 and "marked with" not in said
+    assert ("Written to the file: regression; shown for comparison, not written (ask for them with --method): "
+            "Bartlett and correlation-preserving.") in said
+    both = " ".join(cfa_tool.scores(THREE_FACTORS, hs_data, methods=["regression", "bartlett"]).summary().split())
+    assert ("Written to the file: regression and Bartlett; shown for comparison, not written (ask for them with "
+            "methods=...): correlation-preserving.") in both
+
+
+def test_rows_scored_from_some_of_a_factors_items_are_said_to_be_less_precise(hs_data):
+    # new-user trial s11: patients scored from 2-3 of 5 items had SEs of .45-.54 against .37 and nothing said so.
+    # Check values: the regression score's error variance given the items a row answered, diag(Phi - Phi L_o'
+    # Sigma_oo^-1 L_o Phi) for the answered items o (the posterior variance of the factors given the answers under
+    # a normal factor model; Bartholomew, Knott & Moustaki 2011, ch. 2), computed here with numpy from the fit's
+    # estimates; the note's range must be that of the rows with gaps.
+    import re
+
+    import cfa_tool
+
+    data = hs_data.copy()
+    rng = np.random.default_rng(11)
+    gone = rng.choice(len(data), 40, replace=False)
+    data.loc[data.index[gone[:20]], "x1"] = np.nan
+    data.loc[data.index[gone[20:]], ["x2", "x3"]] = np.nan  # one item of visual left for these rows
+    result = cfa_tool.scores(THREE_FACTORS, data)
+    note = next(n for n in result.notes if n.startswith("Rows that answered some but not all"))
+    est = result.fit.to_dict()["estimates"]
+    L, phi, theta = np.zeros((9, 3)), np.zeros((3, 3)), np.zeros(9)
+    for row in est:
+        a, b = (row["variables"] * 2)[:2]  # a variance names one variable
+        if row["kind"] == "loading":
+            L[ITEMS.index(b), FACTORS.index(a)] = row["estimate"]
+        elif row["kind"] in ("factor_variance", "factor_covariance"):
+            phi[FACTORS.index(a), FACTORS.index(b)] = phi[FACTORS.index(b), FACTORS.index(a)] = row["estimate"]
+        elif row["kind"] == "residual_variance":
+            theta[ITEMS.index(a)] = row["estimate"]
+    sigma = L @ phi @ L.T + np.diag(theta)
+
+    def se(answered: list[int]) -> float:
+        Lo = L[answered]
+        post = phi - phi @ Lo.T @ np.linalg.solve(sigma[np.ix_(answered, answered)], Lo @ phi)
+        return float(np.sqrt(post[0, 0]))
+
+    all_but_x1 = [i for i in range(9) if i != 0]
+    only_x1 = [i for i in range(9) if i not in (1, 2)]
+    low, high = sorted([se(all_but_x1), se(only_x1)])
+    shown = re.search(r"visual: 40 rows, SE (\S+) to (\S+) against (\S+) with every item", note)
+    assert shown, note
+    assert [float(x) for x in shown.groups()] == [round(low, 2), round(high, 2), round(se(list(range(9))), 2)]
+    assert "textual" not in note and "speed" not in note  # their items were all answered
+
+
+@pytest.mark.parametrize("from_fit", [False, True])
+def test_a_blank_row_of_the_file_keeps_an_empty_line_so_the_scores_line_up(tmp_path, model_file, capsys, from_fit):
+    # hostile trial s11: a blank sheet row was dropped from scores.csv, so the file pasted beside the sheet gave every
+    # later row the score of the row below it.  Check: the scores of the file without the blank row, line by line.
+    import openpyxl
+
+    raw = pd.read_csv(HS_FILE)
+    book = openpyxl.Workbook()
+    sheet = book.active
+    sheet.append(list(raw.columns))
+    for k, row in enumerate(raw.itertuples(index=False)):
+        if k == 9:
+            sheet.append([])  # sheet row 11 is blank
+        sheet.append(list(row))
+    book.save(tmp_path / "blank.xlsx")
+    raw.to_excel(tmp_path / "plain.xlsx", index=False)
+    extra = []
+    if from_fit:
+        assert _run(["fit", model_file, "--data", tmp_path / "plain.xlsx", "--json", tmp_path / "fit.json"],
+                    capsys)[0] == 0
+        extra = ["--from-fit", tmp_path / "fit.json"]
+    assert _run(["scores", model_file, "--data", tmp_path / "blank.xlsx", "--output", tmp_path / "b.csv"] + extra,
+                capsys)[0] == 0
+    assert _run(["scores", model_file, "--data", tmp_path / "plain.xlsx", "--output", tmp_path / "p.csv"] + extra,
+                capsys)[0] == 0
+    blank = (tmp_path / "b.csv").read_text().splitlines()
+    plain = (tmp_path / "p.csv").read_text().splitlines()
+    assert len(blank) == len(plain) + 1 and set(blank[10]) <= {","}  # line 11, as the sheet's row 11
+    assert blank[:10] + blank[11:] == plain

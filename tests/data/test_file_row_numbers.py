@@ -120,13 +120,16 @@ def test_a_footer_row_gets_empty_scores(rider_demo, rider_model, tmp_path, metho
     path, _, _ = _export(rider_demo, tmp_path / "export.xlsx")
     scored = cfa_tool.scores(rider_model, str(path), methods=[method], id_column="rider_id")
     table = scored.table
-    assert len(table) == len(rider_demo) + 1  # one line per row of the file with a value, the footer included
+    # one line per row of the sheet from the first row of data to the footer: its blank rows as empty lines, so that
+    # the scores line up with the sheet (hostile trial s11)
+    assert len(table) == len(rider_demo) + 1 + 8 and list(table.index) == list(range(table.index[0], table.index[-1] + 1))
+    assert table.isna().all(axis=1).sum() == 8
     footer = table[table["rider_id"] == FOOTER]
     assert len(footer) == 1
     score_columns = [c for c in table.columns if c.endswith(method.replace("-", "_"))]
     assert len(score_columns) == 3
     assert footer[score_columns].isna().all(axis=None)  # no answer: no score, never 0
-    assert table[score_columns].iloc[:-1].notna().all(axis=None)
+    assert table[score_columns][table["rider_id"].notna()].iloc[:-1].notna().all(axis=None)
 
 
 def test_a_row_of_the_models_names_under_question_texts_is_said_and_can_be_read(rider_demo, rider_model, tmp_path):

@@ -83,10 +83,13 @@ def test_parameters_freed_at_an_earlier_step_stay_free_and_are_said(partial_ladd
     from cfa_tool.reporting.workflow_tables import invariance_report
 
     text = _text(partial_ladder)
-    assert "Strict invariance did not hold with every equality but those freed at earlier steps" in text
+    # the strict step's search frees nothing since s11: its largest score test (3.29) is not significant at .05
+    # (Yoon & Millsap 2007), though the step's own test rejects it (p = .037)
+    assert ("Strict invariance, partial with the intercept of x3 (freed at the scalar step) and the intercept of x7 "
+            "(freed at the scalar step) still free, did not hold") in text
     assert "From the partially invariant scalar model:" not in text
     labels = [row[0] for row in invariance_report(partial_ladder).tables[1].rows]
-    assert "strict (before its search)" in labels and "strict (partial, 1 freed)" in labels
+    assert "strict (partial)" in labels
     assert "scalar (all equal)" in labels and "scalar (2 freed)" in labels
 
 

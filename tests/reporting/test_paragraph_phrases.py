@@ -22,7 +22,7 @@ def test_coverage_is_never_rounded_up():
     data = _hs()
     data.iloc[0, 1] = np.nan  # x2: 300 of 301 rows answered, 99.67%
     text = methods_paragraph(cfa_tool.fit(THREE_FACTORS, data))
-    assert "each item answered in at least 99.6% of the rows" in text and "1.00" not in text
+    assert "each item was answered in at least 99.6% of the rows" in text and "1.00" not in text
 
 
 def test_a_negative_loading_gives_the_range_in_absolute_value():

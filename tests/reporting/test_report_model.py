@@ -163,7 +163,10 @@ def test_every_format_holds_the_same_tables_and_report_writes_them_again(command
     # CSV and LaTeX: one pair per table (and the problems first), headers as in the table
     names = sorted(p.name for p in written[4].iterdir() if not p.name.startswith("."))
     keys = [t.key for t in report.tables] + (["problems"] if report.notice is not None else [])
-    assert names == sorted([f"{k}.csv" for k in keys] + [f"{k}.tex" for k in keys])
+    assert names == sorted([f"{k}.csv" for k in keys] + [f"{k}.tex" for k in keys] + ["contents.txt"])
+    contents = (written[4] / "contents.txt").read_text().splitlines()  # the report and each file's table, named
+    assert contents[0] == report.title and all(any(line.startswith(f"{k}.csv, {k}.tex: ") for line in contents)
+                                               for k in keys)
     for table in report.tables:
         header = next(csv.reader(io.StringIO((written[4] / f"{table.key}.csv").read_text())))
         assert header == list(table.value_columns or table.columns)

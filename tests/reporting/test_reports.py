@@ -427,3 +427,29 @@ def test_modification_indices_none_at_the_threshold_are_said_not_left_out(hs_dat
     assert table.values[0][3] == largest.index and "at least 1000" in table.note
     lean = cfa_tool.fit(text, hs_data, modification_indices=False)
     assert T.modification_table(lean) is None  # not computed: nothing to say
+
+
+def test_a_tables_folder_lists_its_tables_and_names_an_earlier_runs_left_behind(tmp_path):
+    # hostile trial s11: a three-factor fit's tables, then a one-factor fit into the same folder: factor_2.csv,
+    # factor_3.csv and distinct_0.csv of the other model stayed, untitled, and nothing was said
+    folder = tmp_path / "tables"
+    first = run("fit", str(MODEL), "--data", str(DATA), "--tables", str(folder))
+    assert first.returncode == 0, first.stderr
+    assert "Caution" not in first.stdout
+    three = (folder / "contents.txt").read_text().splitlines()
+    assert any(line.startswith("factor_3.csv, factor_3.tex: Factor ") for line in three)
+    one = tmp_path / "one.cfa"
+    one.write_text("factor f: on_time, short_wait, accurate_info, easy_transfer, seat_available, clean, temperature, "
+                   "room_to_stand, greeting, helpful, respectful, clear_answers\n")
+    second = run("fit", str(one), "--data", str(DATA), "--tables", str(folder))
+    assert second.returncode == 0, second.stderr
+    said = " ".join(second.stdout.split())
+    assert "also holds" in said and "factor_2.csv, factor_2.tex, factor_3.csv, factor_3.tex" in said
+    contents = (folder / "contents.txt").read_text()
+    assert "factor_3" not in contents and contents.splitlines()[0] == first_title_of(second.stdout)
+    assert (folder / "factor_3.csv").exists()  # left in place: this run did not write it
+
+
+def first_title_of(terminal: str) -> str:
+    """The report's title as the terminal shows it (its first line that is not part of a problem box)."""
+    return next(line.strip() for line in terminal.splitlines() if line.strip() and line.strip()[0] not in "┏┃┗╭│╰")
