@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import argparse
 
-from cfa_tool.errors import OptionError, printable
+from cfa_tool.errors import OptionError
 from cfa_tool.method import FitTest, MissingData, Weighting
 
 
