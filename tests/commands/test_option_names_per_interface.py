@@ -168,7 +168,7 @@ def test_the_public_functions_declare_their_own_keywords():
 @pytest.mark.parametrize("call, near", [
     (lambda d: cfa_tool.replicate(d / "rider.cfa", d / "rider.csv", d / "rider.csv", ordinl="all"), "ordinal"),
     (lambda d: cfa_tool.split_half(d / "rider.cfa", d / "rider.csv", sed=3), "seed"),
-    (lambda d: cfa_tool.scores(d / "rider.cfa", d / "rider.csv", method="bartlett"), "methods"),
+    (lambda d: cfa_tool.scores(d / "rider.cfa", d / "rider.csv", methds="bartlett"), "methods"),
     (lambda d: cfa_tool.compare([d / "rider.cfa", d / "one.cfa"], d / "rider.csv", grop="district"), "group"),
 ])
 def test_an_unknown_keyword_is_named_with_the_nearest_keyword_of_the_function_called(call, near, files):
