@@ -99,6 +99,12 @@ class Replication(Presentable):
     answer_coding: tuple = ()
 
     def to_dict(self) -> dict:
+        """The JSON of ``replicate --json`` without its wrapper (tool, version, command, report): this
+        replication as the one entry of ``replications`` (:meth:`Replications.to_dict`, the one builder)."""
+        return Replications((self,)).to_dict()
+
+    def entry(self) -> dict:
+        """This replication's entry of ``replications`` in the JSON."""
         loose = self.loose.fit.to_dict() if self.loose.fit is not None else None
 
         def robust(result) -> dict | None:  # the adjusted figures the report shows for ordinal items
@@ -131,7 +137,7 @@ class Replications(Presentable):
     replications: tuple[Replication, ...]
 
     def to_dict(self) -> dict:
-        return {"replications": [r.to_dict() for r in self.replications]}
+        return {"replications": [r.entry() for r in self.replications]}
 
 
 def discrepancy(S: np.ndarray, sigma: np.ndarray) -> float:

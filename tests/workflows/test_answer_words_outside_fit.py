@@ -61,7 +61,7 @@ def test_replication_on_new_data_codes_both_files_and_says_so(coded):
     assert abs(words.same_solution.chi_square_difference - numbers.same_solution.chi_square_difference) < 1e-8
     assert abs(words.cvi - numbers.cvi) < 1e-10
     assert words.notes.count(CODING) == 1  # one coding, said once for both files
-    assert "answer_coding" in words.to_dict() and "answer_coding" not in numbers.to_dict()
+    assert "answer_coding" in words.entry() and "answer_coding" not in numbers.entry()
 
 
 def test_compare_codes_each_later_models_items_once_with_the_missing_codes(coded, tmp_path):

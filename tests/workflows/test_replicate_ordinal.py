@@ -43,7 +43,7 @@ def test_the_same_rows_give_the_calibration_statistic_and_the_adjustment_by_hand
     same = rep.same_solution
     # equal samples: the unadjusted difference is 0, so the scale-shifted one is only its shift df (1 - s), below df
     assert same.df_difference == 7 and 0 <= same.chi_square_difference < 7 and same.p_value > 0.95
-    assert rep.adjusted and rep.to_dict()["same_solution_test"]["method"] == str(DifferenceMethod.SCALE_SHIFTED)
+    assert rep.adjusted and rep.entry()["same_solution_test"]["method"] == str(DifferenceMethod.SCALE_SHIFTED)
 
 
 def test_the_loose_refit_is_the_fit_of_the_validation_data():
@@ -102,7 +102,7 @@ def test_a_validation_category_the_calibration_never_had_is_an_error_naming_it()
     # cannot be estimated side by side, so there is no test of one solution, and the report says why
     lacking = replicate(MODEL, calibration, validation.assign(q2=validation.q2.clip(upper=4)))
     assert np.isnan(lacking.same_solution.p_value) and "missing from one sample" in lacking.same_solution.not_computed
-    assert lacking.to_dict()["same_solution_test"]["p_value"] is None
+    assert lacking.entry()["same_solution_test"]["p_value"] is None
     from cfa_tool.reporting.workflow_tables import replication_report
 
     report = replication_report(lacking)

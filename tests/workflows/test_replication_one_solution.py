@@ -56,7 +56,7 @@ def test_the_closed_form_is_the_two_group_fit_with_every_covariance_parameter_eq
 
 def test_the_json_block_is_renamed_so_that_readers_of_the_old_check_fail(hs_data):
     rep = cfa_tool.replicate(THREE_FACTORS, hs_data.iloc[:150], hs_data.iloc[150:])
-    out = rep.to_dict()
+    out = rep.entry()
     assert "tight" not in out
     block = out["same_solution_test"]
     assert block["df_difference"] == 21 and block["method"] == "likelihood ratio"
