@@ -74,6 +74,8 @@ ORDINAL_FIT_CHANGE = ("with ordinal items each model's CFI and RMSEA come from i
 #: threshold and correlation from the rows that answered its items are consistent when answers are missing completely
 #: at random (Little & Rubin 2002), while full-information estimation needs them only missing at random
 MISSING_COMPLETELY_AT_RANDOM = "answers are missing completely at random"
+#: what full-information ML assumes of rows with gaps (Little & Rubin 2002), in the same words
+MISSING_AT_RANDOM = "answers are missing at random"
 
 
 class FitTest(Choice):

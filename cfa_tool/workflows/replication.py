@@ -57,7 +57,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.model.parameters import one_group_only
-from cfa_tool.pipeline.inputs import (data_problems, load_data_for, load_spec, make_options, missing_codes_option,
+from cfa_tool.pipeline.inputs import (_described, data_problems, load_data_for, load_spec, make_options, missing_codes_option,
                                       odd_values_named, refit_missing_handling, screened)
 from cfa_tool.assessment.fit_indices import chi_square_p
 from cfa_tool.data.answer_words import code_answer_words, coding_json, coding_record
@@ -73,6 +73,35 @@ from cfa_tool.method import DifferenceMethod, MissingData, Weighting
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.nesting import DifferenceTest
+
+
+@dataclass(frozen=True)
+class SampleRows:
+    """The rows of one sample: ``read`` from its data, ``analysed``, of those ``with_gaps`` (a missing answer on some
+    model variable), ``left_out`` (the rest of those read: rows with gaps under listwise deletion, else rows answering
+    none of the model's variables), and how rows with gaps were used (``missing``: full-information ML, pairwise
+    present rows of ordinal items, or listwise deletion)."""
+
+    read: int
+    analysed: int
+    with_gaps: int
+    left_out: int
+    missing: MissingData
+
+    def to_dict(self) -> dict:
+        return {"rows_read": self.read, "rows_analysed": self.analysed, "analysed_with_gaps": self.with_gaps,
+                "rows_left_out": self.left_out, "rows_with_gaps_used_by": self.missing.value}
+
+
+def sample_rows(moments, result: FitResult) -> SampleRows:
+    """The :class:`SampleRows` of a sample's moments (SampleMoments: the analysed rows, gaps as NaN; OrdinalMoments:
+    their answer codes, -1 for no answer) and the fit that used them."""
+    codes = getattr(moments, "codes", None)
+    if codes is not None:
+        gaps = int((np.asarray(codes) < 0).any(axis=1).sum())
+    else:
+        gaps = int(np.isnan(moments.rows).any(axis=1).sum()) if moments.rows is not None else 0
+    return SampleRows(moments.rows_read, moments.n_obs, gaps, moments.rows_read - moments.n_obs, result.method.missing)
 
 
 @dataclass(frozen=True, eq=False)
@@ -97,6 +126,8 @@ class Replication(Presentable):
     notes: tuple[str, ...] = ()
     #: the model's coding of answer words (data.answer_words.coding_record), as a fit's JSON keeps it
     answer_coding: tuple = ()
+    #: the rows of the calibration and of the validation sample (SampleRows)
+    rows: tuple = ()
 
     def to_dict(self) -> dict:
         """The JSON of ``replicate --json`` without its wrapper (tool, version, command, report): this
@@ -116,10 +147,12 @@ class Replication(Presentable):
             **({"answer_coding": coding_json(self.answer_coding)} if self.answer_coding else {}),
             "split": self.split.to_dict() if self.split is not None else None,
             "calibration": {"data": self.calibration, "n_obs": self.calibration_result.n_obs,
+                            **({"rows": self.rows[0].to_dict()} if self.rows else {}),
                             "admissible": self.calibration_result.admissible,
                             "problems": [p.to_dict() for p in self.calibration_result.problems],
                             "fit": self.calibration_result.fit.to_dict(), "robust": robust(self.calibration_result)},
-            "validation": {"data": self.validation, "n_obs": self.loose.n_obs},
+            "validation": {"data": self.validation, "n_obs": self.loose.n_obs,
+                           **({"rows": self.rows[1].to_dict()} if self.rows else {})},
             "loose": {"fit": loose, "admissible": self.loose.admissible,
                       "problems": [p.to_dict() for p in self.loose.problems], "robust": robust(self.loose)},
             # renamed from "tight" (which held another statistic: the validation sample against the calibration
@@ -243,6 +276,7 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
         raise EstimationError(f"the model did not converge in the calibration sample {calibration.source} ({cal.message})")
     with estimation_of(f"validation sample {validation.source}"):
         loose = fit_moments(spec, validation, fit_options(validation))
+    cal, loose = _described(cal, spec, None), _described(loose, spec, None)  # the methods paragraph's model
     order = [validation.names.index(n) for n in cal.observed]
     S_val = validation.covariance[np.ix_(order, order)]
     sigma_cal = cal.implied_covariance
@@ -257,7 +291,8 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
     else:
         F, F_saturated = discrepancy(S_val, sigma_cal), discrepancy(S_val, cal.sample_covariance)
     return Replication(calibration.source, validation.source, cal, loose,
-                       _same_solution(spec, calibration, validation, cal, loose, options), F, F_saturated)
+                       _same_solution(spec, calibration, validation, cal, loose, options), F, F_saturated,
+                       rows=(sample_rows(calibration, cal), sample_rows(validation, loose)))
 
 
 def replicate_ordinal(spec: Spec, calibration, validation, method: Weighting | str = Weighting.DIAGONAL,
@@ -274,6 +309,7 @@ def replicate_ordinal(spec: Spec, calibration, validation, method: Weighting | s
         raise EstimationError(f"the model did not converge in the calibration sample {calibration.source} ({cal.message})")
     with estimation_of(f"validation sample {validation.source}"):
         loose = fit_ordinal(spec, validation, fit_options, method)
+    cal, loose = _described(cal, spec, None), _described(loose, spec, None)  # the methods paragraph's model
     pairs = np.tril_indices(len(cal.observed), -1)
     r, gamma = correlations_in_order(validation, cal.observed)
     weights = 1.0 / np.diag(gamma) if Weighting.parse(method, "the ordinal estimator") is Weighting.DIAGONAL \
@@ -285,7 +321,8 @@ def replicate_ordinal(spec: Spec, calibration, validation, method: Weighting | s
 
     test = _same_ordinal_solution(spec, together, loose, fit_options, method)
     return Replication(calibration.source, validation.source, cal, loose, test, discrepancy_of(cal.implied_covariance),
-                       discrepancy_of(cal.sample_covariance), adjusted=True)
+                       discrepancy_of(cal.sample_covariance), adjusted=True,
+                       rows=(sample_rows(calibration, cal), sample_rows(validation, loose)))
 
 
 def _same_ordinal_solution(spec: Spec, groups: list | str | None, loose: FitResult, fit_options,
@@ -560,10 +597,11 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
     if ordinal_items:
         ma = _ordinal_moments(spec, a, f"{source} (half A, seed {seed})", ordinal_items, pairwise)
         mb = _ordinal_moments(spec, b, f"{source} (half B, seed {seed})", ordinal_items, pairwise)
-        ab = _two_samples(spec, (a, b), source, ordinal_items, pairwise)
-        ba = _two_samples(spec, (b, a), source, ordinal_items, pairwise)
-        return (replicate_ordinal(spec, ma, mb, method, ab, **options),
-                replicate_ordinal(spec, mb, ma, method, ba, **options)), rows
+        first = replicate_ordinal(spec, ma, mb, method, _two_samples(spec, (a, b), source, ordinal_items, pairwise),
+                                  **options)
+        # one test of one solution for both directions: the same two halves (not fitted twice)
+        second = replace(replicate_ordinal(spec, mb, ma, method, "", **options), same_solution=first.same_solution)
+        return (first, second), rows
     ma = sample_moments(a, spec.observed_names, f"{source} (half A, seed {seed})", missing=handling)
     mb = sample_moments(b, spec.observed_names, f"{source} (half B, seed {seed})", missing=handling)
 

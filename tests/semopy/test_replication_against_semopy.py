@@ -2,7 +2,7 @@
 
 semopy 2.3's multi-group analysis (semopy.multigroup) fits each group on its own and holds nothing equal, so the
 two-sample model with one solution is computed from its pieces: semopy fits the model to each school's rows
-(the separate solutions; its default solver, SLSQP) and to the pooled within-school covariance matrix S_pooled = sum n_g S_g / N (the one
+(the separate solutions; its default solver, SLSQP: trust-constr, which DEVELOPERS.md advises, did not converge from a covariance matrix here) and to the pooled within-school covariance matrix S_pooled = sum n_g S_g / N (the one
 solution: it minimises sum_g n_g F(S_g, Sigma), workflows.replication's docstring derives it), and the two-sample
 chi-square with one solution is sum_g n_g F(S_g, Sigma_hat) with numpy's F = log|Sigma| + tr(S Sigma^-1) - log|S| - p
 (Jöreskog 1969) at semopy's Sigma_hat, not the closed form the tool uses."""
