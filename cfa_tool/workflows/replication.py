@@ -221,26 +221,30 @@ def pooled_chi_square(spec: Spec, samples: tuple[SampleMoments, SampleMoments], 
     """(chi-square, df, fit to S_pooled) of the two-sample model with one covariance structure for complete rows:
     N F(S_pooled, Sigma_hat) + sum_g n_g (log|S_pooled| - log|S_g|), Sigma_hat the one-sample fit to S_pooled
     (derived in the module docstring), on 2 p(p+1)/2 - q df."""
-    first = samples[0]
-    covariances = [m.covariance[np.ix_(*[[m.names.index(n) for n in first.names]] * 2)] for m in samples]
-    n = np.array([m.n_obs for m in samples], dtype=float)
-    N = int(n.sum())
+    names = samples[0].names
+
+    def in_order(m: SampleMoments) -> list[int]:
+        return [m.names.index(x) for x in names]
+
+    covariances = [m.covariance[np.ix_(in_order(m), in_order(m))] for m in samples]
+    n = [m.n_obs for m in samples]
+    N = sum(n)
     S = sum(k * c for k, c in zip(n, covariances)) / N
-    means = sum(k * m.means[[m.names.index(x) for x in first.names]] for k, m in zip(n, samples)) / N
-    pooled = SampleMoments(first.names, S, means, N, N, 0, "the two samples pooled")
-    fit = fit_moments(spec, pooled, options)
+    means = sum(k * m.means[in_order(m)] for k, m in zip(n, samples)) / N  # not used by the covariance structure
+    fit = fit_moments(spec, SampleMoments(names, S, means, N, N, 0, "the two samples pooled"), options)
+    order = [fit.observed.index(x) for x in names]
     log_det = log_det_pd(S)
-    chi = N * discrepancy(S, fit.implied_covariance[np.ix_(*[[fit.observed.index(x) for x in first.names]] * 2)]) + \
+    chi = N * discrepancy(S, fit.implied_covariance[np.ix_(order, order)]) + \
         float(sum(k * (log_det - log_det_pd(c)) for k, c in zip(n, covariances)))
-    p = len(first.names)
-    return chi, p * (p + 1) - (p * (p + 1) // 2 - fit.fit.df), fit
+    moments = len(names) * (len(names) + 1) // 2
+    return chi, 2 * moments - (moments - fit.fit.df), fit
 
 
 def _same_solution(spec: Spec, calibration: SampleMoments, validation: SampleMoments, cal: FitResult,
                    loose: FitResult, options: dict) -> DifferenceTest:
-    """The test of one solution in both samples (module docstring): in closed form for complete rows of a model
-    without intercepts or factor means; else the two-sample full-information fit with every covariance-structure
-    parameter held equal."""
+    """The test of one solution in both samples (module docstring): in closed form for complete rows fitted by ML;
+    else (rows with gaps, or full-information ML asked for) the two-sample full-information fit with every
+    covariance-structure parameter held equal."""
     if not (cal.converged and loose.converged):
         return _not_tested("the model did not converge in the validation sample, so the two samples' own solutions "
                            "are not at hand")
