@@ -399,7 +399,7 @@ def _ordinal_setup(spec: Spec, ordinal, ordinal_estimator, options: dict,
 
 def _same_categories(calibration, validation, frame: pd.DataFrame) -> None:
     """An error when an ordinal item of the validation sample has an answer category the calibration sample never
-    had: the two samples' answer scales differ, so the calibration's thresholds and the tight check cannot carry
+    had: the two samples' answer scales differ, so the calibration's thresholds and the cross-validation index cannot carry
     over (as scores of other data refuse such an answer, workflows.factor_scores._check_categories)."""
     for name, seen, cats in zip(validation.names, calibration.categories, validation.categories):
         new = [c for c in cats if c not in set(seen)]
