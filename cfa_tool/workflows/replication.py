@@ -266,9 +266,11 @@ def _same_solution(spec: Spec, calibration: SampleMoments, validation: SampleMom
     return _likelihood_ratio(both.fit.chi_square, both.fit.df, (cal, loose))
 
 
-def replicate_moments(spec: Spec, calibration: SampleMoments, validation: SampleMoments, **options) -> Replication:
+def replicate_moments(spec: Spec, calibration: SampleMoments, validation: SampleMoments,
+                      same_solution: DifferenceTest | None = None, **options) -> Replication:
     """The replication of continuous items; a sample whose rows have gaps (moments by EM) is fitted by
-    full-information ML, and so is the two-sample model of the test of one solution."""
+    full-information ML, and so is the two-sample model of the test of one solution (``same_solution``: that
+    test made already, for the same two samples the other way round)."""
 
     def fit_options(moments: SampleMoments):
         missing = MissingData.FULL_INFORMATION if _has_gaps(moments) else MissingData.LISTWISE
@@ -295,7 +297,7 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
     else:
         F, F_saturated = discrepancy(S_val, sigma_cal), discrepancy(S_val, cal.sample_covariance)
     return Replication(calibration.source, validation.source, cal, loose,
-                       _same_solution(spec, calibration, validation, cal, loose, options), F, F_saturated,
+                       same_solution or _same_solution(spec, calibration, validation, cal, loose, options), F, F_saturated,
                        rows=(sample_rows(calibration, cal), sample_rows(validation, loose)))
 
 
@@ -609,4 +611,6 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
     ma = sample_moments(a, spec.observed_names, f"{source} (half A, seed {seed})", missing=handling)
     mb = sample_moments(b, spec.observed_names, f"{source} (half B, seed {seed})", missing=handling)
 
-    return (replicate_moments(spec, ma, mb, **options), replicate_moments(spec, mb, ma, **options)), rows
+    first = replicate_moments(spec, ma, mb, **options)
+    # one test of one solution for both directions: the same two halves (not fitted twice)
+    return (first, replicate_moments(spec, mb, ma, first.same_solution, **options)), rows
