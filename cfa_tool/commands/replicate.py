@@ -20,7 +20,7 @@ def add_parser(sub) -> None:
     O.add_data_options(rep, filters=False)
     O.add_ordinal_options(rep)
     O.add_incomplete_rows_option(rep, O.REFITS_AS_THE_FIT)
-    O.refuse_design_options(rep, "replicate's tight test and cross-validation index compare the discrepancies of "
+    O.refuse_design_options(rep, "replicate's test of one solution and cross-validation index compare the discrepancies of "
                                  "independent, equally weighted rows (and the random halves would split clusters), so "
                                  "they would mislead under a sampling design; fit each sample with 'fit' and its design "
                                  "options instead")

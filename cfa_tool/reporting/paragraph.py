@@ -1159,3 +1159,116 @@ def invariance_paragraph(result, levels) -> str:
                  "The guide values and change-in-fit guides (Cheung & Rensvold, 2002; Chen, 2007) are conventions "
                  "rather than strict criteria.")
     return " ".join(parts)
+
+
+# ---------------------------------------------------------------- replication
+
+def _sample_rows_phrase(rows) -> str:
+    """One sample's rows (workflows.replication.SampleRows) and how those with gaps were used, with what that
+    assumes (Little & Rubin, 2002)."""
+    text = f"N = {rows.analysed} of {rows.read} rows read"
+    if rows.missing is MissingData.FULL_INFORMATION and rows.with_gaps:
+        text += (f"; {rows.with_gaps} with missing answers, whose every answer was used by full-information maximum "
+                 f"likelihood, which assumes that {MISSING_AT_RANDOM} (Little & Rubin, 2002)")
+    elif rows.missing is MissingData.PAIRWISE and rows.with_gaps:
+        text += (f"; {rows.with_gaps} with missing answers, used pairwise (each item's thresholds from the rows that "
+                 f"answered it and each correlation from the rows that answered both items), which assumes that "
+                 f"{MISSING_COMPLETELY_AT_RANDOM} (Little & Rubin, 2002)")
+    if rows.left_out and rows.missing is MissingData.LISTWISE:
+        text += (f"; {rows.left_out} with missing answers excluded listwise, which assumes that "
+                 f"{MISSING_COMPLETELY_AT_RANDOM} (Little & Rubin, 2002)")
+    elif rows.left_out:
+        text += f"; {rows.left_out} answering no model variable left out"
+    if not rows.with_gaps and not rows.left_out:
+        text += ", none with missing answers"
+    return text
+
+
+def _loading_pairs(rep) -> list[tuple[tuple[str, str], float, float]]:
+    """((factor, item), calibration, validation) standardized loadings of the items, in the calibration's order."""
+    def loadings(result) -> dict:
+        return {r.variables: r.standardized for r in result.estimates
+                if r.kind == "loading" and r.variables[1] in result.observed}
+
+    calibration, validation = loadings(rep.calibration_result), loadings(rep.loose)
+    return [(key, value, validation[key]) for key, value in calibration.items() if key in validation]
+
+
+def _one_solution_sentence(rep) -> str:
+    """The test of one solution in both samples (workflows.replication), or why it was not made."""
+    t = rep.same_solution
+    free = "thresholds" if rep.adjusted else "intercepts"
+    if t.not_computed:
+        return (f"Whether one solution holds in both samples was not tested ({t.not_computed}); the cross-validation "
+                f"index alone describes the replication.")
+    held = ("loading, error covariance and factor variance and covariance" if rep.adjusted else
+            "loading, error variance and covariance and factor variance and covariance")
+    return (f"Whether one solution holds in both samples was tested by fitting the two samples together with every "
+            f"{held} held equal (the {free} free "
+            f"in each sample; Jöreskog, 1971) against the two samples fitted separately, by {t.method.phrase}: "
+            f"{CHI}({t.df_difference}) = {t.chi_square_difference:.2f}, {_p(t.p_value)}.")
+
+
+def _replication_sentences(rep, lead: str, test: bool = True) -> list[str]:
+    """The figures of one replication: its solutions' problems first, the fits, the test of one solution (unless
+    ``test`` is False: random halves test it once, for both directions), the cross-validation index and the
+    largest difference of standardized loadings."""
+    parts = []
+    for name, result in (("calibration", rep.calibration_result), ("validation", rep.loose)):
+        if result.converged and not result.admissible:
+            found = _list([p.phrase(quoted=True) for p in result.problems if p.kind.inadmissible])
+            parts.append(f"{lead}the solution in the {name} sample was not admissible ({found}): its estimates and "
+                         f"fit do not describe a population.")
+    statistic = f" (the {rep.calibration_result.robust.test.label} statistic and robust indices)" \
+        if rep.adjusted and rep.calibration_result.robust is not None else ""
+    parts.append(f"{lead}fit{statistic} in the calibration sample, {_fit_figures(rep.calibration_result)}; in the "
+                 f"validation sample, {_fit_figures(rep.loose)}.")
+    if test:
+        parts.append(_one_solution_sentence(rep))
+    parts.append(f"The cross-validation index (Cudeck & Browne, 1983) was {rep.cvi:.4f} (saturated model: "
+                 f"{rep.cvi_saturated:.4f}; smaller is better), a description without a test.")
+    pairs = _loading_pairs(rep) if rep.loose.converged else []
+    if pairs:
+        (factor, item), a, b = max(pairs, key=lambda k: abs(k[2] - k[1]))
+        parts.append(f"Standardized loadings differed between the samples by at most {unit(abs(b - a), 2)} "
+                     f"({_name(item)} on {_name(factor)}: {unit(a, 2)} and {unit(b, 2)}).")
+    return [_capital(p) for p in parts]
+
+
+def replication_paragraph(replications) -> str:
+    """The methods-and-results paragraph of a replication (workflows.replication): exactly the model, the estimator,
+    each sample's rows and how rows with gaps were used (with the assumption each way makes), how random halves
+    were drawn, then for each replication its fits, the test of one solution in both samples (or why it was not
+    made), the cross-validation index (Cudeck & Browne, 1983) and the largest difference of standardized loadings."""
+    reps = list(getattr(replications, "replications", None) or [replications])
+    first = reps[0]
+    result = first.calibration_result
+    d = result.description
+    model = (f"a confirmatory factor analysis with {_structure(result, d).rstrip(',')}" if d is not None else
+             f"a confirmatory factor analysis of {_count(len(result.observed), 'indicator')}")
+    estimator = _estimator_phrase(result)
+    other = _estimator_phrase(first.loose)
+    by = estimator if other == estimator else f"{estimator} (in the validation sample by {other})"
+    if first.split is not None:
+        rows = first.split
+        parts = [f"The replication of {model} was examined in two random halves of {rows.split} of the {rows.in_file} "
+                 f"rows of one data file: each half served once as the calibration sample, where the model was "
+                 f"estimated by {by}, and once as the validation sample, where it was refitted (double "
+                 f"cross-validation; Cudeck & Browne, 1983), and whether one solution holds in both halves was "
+                 f"tested once (the same two halves either way); half A: {_sample_rows_phrase(first.rows[0])}; half B: "
+                 f"{_sample_rows_phrase(first.rows[1])}."] if first.rows else []
+    else:
+        parts = [f"The replication of {model} was examined in two samples: the model was estimated in a calibration "
+                 f"sample ({_sample_rows_phrase(first.rows[0])}) and refitted in a validation sample "
+                 f"({_sample_rows_phrase(first.rows[1])}), each time by {by}."] if first.rows else []
+    coding = answer_coding_sentence(result.data)
+    if coding:
+        parts.append(coding)
+    for r in (result, first.loose):
+        read, kept = _read_as_missing(r.data), _kept_as_answers(r.data)
+        if read or kept:
+            parts.append(_capital(f"in {r.data.source}, {'; '.join(x for x in (read, kept) if x)}") + ".")
+    for k, rep in enumerate(reps):
+        lead = (f"calibrated on half {'AB'[k]} and validated on half {'BA'[k]}: " if len(reps) > 1 else "")
+        parts += _replication_sentences(rep, lead, k == 0)
+    return " ".join(parts)

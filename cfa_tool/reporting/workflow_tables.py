@@ -15,7 +15,8 @@ from cfa_tool.options import Option
 from cfa_tool.method import ADJUSTED_TEST, ORDINAL_FIT_CHANGE, DifferenceMethod, FitTest, MissingData
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.paragraph import _parameter, comparison_paragraph, design_sentence, invariance_paragraph
+from cfa_tool.reporting.paragraph import (_loading_pairs, _parameter, comparison_paragraph, design_sentence,
+                                          invariance_paragraph, replication_paragraph)
 from cfa_tool.reporting.numbers import (fit_index_text, guides_text, missing, num, p_phrase, p_value, short, signed, unit,
                                         word_list)
 from cfa_tool.language.spec import equality_words
@@ -547,6 +548,14 @@ def _replication_figures(result, adjusted: bool) -> tuple:
     return f.chi_square, f.df, f.p_value, f.rmsea, f.cfi
 
 
+#: the replication table's row of the test of one solution in both samples (workflows.replication)
+SAME_SOLUTION_ROW = "One solution for both samples vs. each its own"
+SAME_SOLUTION_NOTE = ("One solution for both samples: the two samples fitted together with every loading, error "
+                      "variance and covariance (of ordinal items: error covariance) and factor variance and covariance "
+                      "held equal, against each sample fitted on its own; a small p says the samples' solutions "
+                      "differ.  The cross-validation index (Cudeck & Browne 1983) is descriptive.")
+
+
 def replication_report(replications) -> Report:
     reps = list(getattr(replications, "replications", None) or [replications])
     problems, cautions, tables, notes = [], [], [], []
@@ -556,6 +565,7 @@ def replication_report(replications) -> Report:
         cautions += _caution_lines([(f"the calibration fit ({rep.calibration})", rep.calibration_result),
                                     (f"the loose refit ({rep.validation})", rep.loose)])
         cal = _replication_figures(rep.calibration_result, rep.adjusted)
+        total = rep.calibration_result.n_obs + rep.loose.n_obs
         rows = [[f"Calibration fit (N = {rep.calibration_result.n_obs})", f"{cal[0]:.3f}", str(cal[1]),
                  p_value(cal[2]), unit(cal[3]), unit(cal[4])]]
         values = [["Calibration fit", rep.calibration_result.n_obs, *cal]]
@@ -570,32 +580,92 @@ def replication_report(replications) -> Report:
         else:
             rows.append(["Loose: same model refitted", "did not converge", "", "", "", ""])
             values.append(["Loose: same model refitted (did not converge)", rep.loose.n_obs, None, None, None, None, None])
-        rows.append(["Tight: all calibration estimates fixed", f"{rep.tight_chi_square:.3f}", str(rep.tight_df),
-                     p_value(rep.tight_p_value), unit(rep.tight_rmsea), ""])
-        values.append(["Tight: all calibration estimates fixed", rep.loose.n_obs, rep.tight_chi_square, rep.tight_df,
-                       rep.tight_p_value, rep.tight_rmsea, None])
+        same = rep.same_solution
+        if same.not_computed:
+            rows.append([SAME_SOLUTION_ROW, "not tested", "", "", "", ""])
+            values.append([f"{SAME_SOLUTION_ROW} (not tested)", total, None, None, None, None, None])
+            notes.append(f"{rep.calibration} and {rep.validation}: one solution for both samples was not tested: "
+                         f"{same.not_computed}; the cross-validation index is descriptive only.")
+        else:
+            rows.append([SAME_SOLUTION_ROW, f"{same.chi_square_difference:.3f}", str(same.df_difference),
+                         p_value(same.p_value), "", ""])
+            values.append([SAME_SOLUTION_ROW, total, same.chi_square_difference, same.df_difference, same.p_value,
+                           None, None])
         tables.append(_table(f"replication_{k + 1}", f"Calibrated on {rep.calibration}, validated on {rep.validation}",
                              [("Check", "l"), ("Chi-square", "r"), ("df", "r"), ("p", "r"), ("RMSEA", "r"), ("CFI", "r")],
                              rows, f"Cross-validation index (Cudeck & Browne 1983): {rep.cvi:.4f}; saturated model: "
                                    f"{rep.cvi_saturated:.4f} (smaller is better).", tuple(flagged),
                              values=(["Check", "N", "Chi-square", "df", "p", "RMSEA", "CFI"], values)))
+        loadings = _loading_table(rep, k + 1)
+        if loadings is not None:
+            tables.append(loadings)
+    if reps[0].rows:
+        tables.insert(0, _rows_table(reps[0]))
     if any(rep.adjusted for rep in reps):
         notes.append(f"Ordinal items: every chi-square, RMSEA and CFI is the {FitTest.SCALE_SHIFTED.label} one of "
-                     "the least-squares fit; the tight check compares the validation sample's polychoric "
-                     "correlations with those the calibration estimates imply, and the cross-validation index is the "
-                     "least-squares discrepancy with the validation sample's weights.")
+                     "the least-squares fit; the test of one solution fits the two samples together, the thresholds "
+                     "free in each, and compares the fits with and without the equalities by the scale-shifted "
+                     "difference (Asparouhov & Muthén 2006); the cross-validation index is the least-squares "
+                     "discrepancy of the validation sample's polychoric correlations from those the calibration "
+                     "estimates imply, with the validation sample's weights.")
     if any(r.method.missing is MissingData.FULL_INFORMATION for rep in reps for r in (rep.calibration_result, rep.loose)):
-        notes.append("Rows with gaps: a sample whose rows have gaps is fitted by full-information ML, as fit fits it; "
-                     "when the validation sample has gaps, the tight check and the cross-validation index are its "
-                     "full-information discrepancy from the calibration covariance matrix, its means at their "
-                     "maximum-likelihood values given that matrix.")
+        notes.append("Rows with gaps: a sample whose rows have gaps is fitted by full-information ML, as fit fits it, "
+                     "and so is the two-sample model of the test of one solution; when the validation sample has "
+                     "gaps, the cross-validation index is its full-information discrepancy from the calibration "
+                     "covariance matrix, its means at their maximum-likelihood values given that matrix.")
+    if any(not rep.same_solution.not_computed for rep in reps):
+        notes.append(SAME_SOLUTION_NOTE)
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions
     split = tuple(dict.fromkeys(_split_sentence(rep.split) for rep in reps if rep.split is not None))
     read = tuple(dict.fromkeys(n for rep in reps for n in getattr(rep, "notes", ())))  # as fit says them
     return Report(ResultKind.REPLICATE, title, _notice(problems, cautions), split, tuple(tables), tuple(notes),
-                  (GUIDE_NOTE, HIGH_STAKES_NOTE), warnings=read)
+                  (GUIDE_NOTE, HIGH_STAKES_NOTE), replication_paragraph(replications), warnings=read)
+
+
+#: how each sample's rows with gaps were used, and what that assumes (Little & Rubin 2002)
+ROWS_WITH_GAPS_USED = {
+    MissingData.FULL_INFORMATION: ("kept: full-information ML", "missing at random"),
+    MissingData.PAIRWISE: ("kept: pairwise present rows", "missing completely at random"),
+    MissingData.LISTWISE: ("left out: listwise deletion", "missing completely at random"),
+}
+
+
+def _rows_table(rep) -> ReportTable:
+    """The rows of each sample (workflows.replication.SampleRows): read, analysed, with gaps, and how those were used
+    (random halves: half A is the first replication's calibration sample)."""
+    names = (("Half A", "Half B") if rep.split is not None else ("Calibration", "Validation"))
+    rows, values, assumed = [], [], []
+    for name, sample in zip(names, rep.rows):
+        gaps = sample.with_gaps if sample.missing is not MissingData.LISTWISE else sample.left_out
+        how, assumption = ROWS_WITH_GAPS_USED[sample.missing] if gaps else ("none had gaps", "")
+        if assumption:
+            assumed.append(f"{name}, answers {assumption}")
+        rows.append([name, str(sample.read), str(sample.analysed), str(gaps), how])
+        values.append([name, sample.read, sample.analysed, gaps, how])
+    columns = [("Sample", "l"), ("Rows read", "r"), ("Analysed", "r"), ("With gaps", "r"), ("Rows with gaps", "l")]
+    note = (f"{names[0]}: {rep.calibration}; {names[1]}: {rep.validation}.  With gaps: rows missing an answer "
+            f"on some model variable (under listwise deletion, those left out)."
+            + (f"  What the handling of gaps assumes (Little & Rubin 2002): {'; '.join(assumed)}." if assumed else ""))
+    return _table("replication_rows", "Rows of each sample", columns, rows, note,
+                  values=([c for c, _ in columns], values))
+
+
+def _loading_table(rep, k: int) -> ReportTable | None:
+    """The standardized loadings of the calibration and the validation sample side by side, with their difference
+    (validation minus calibration); None when the validation fit did not converge."""
+    if not rep.loose.converged:
+        return None
+    pairs = _loading_pairs(rep)
+    rows = [[names_text((factor,)), names_text((item,)), unit(a, 2), unit(b, 2), signed(b - a, 2)]
+            for (factor, item), a, b in pairs]
+    values = [[factor, item, a, b, b - a] for (factor, item), a, b in pairs]
+    columns = [("Factor", "l"), ("Item", "l"), ("Calibration", "r"), ("Validation", "r"), ("Difference", "r")]
+    return _table(f"replication_{k}_loadings", f"Standardized loadings: {rep.calibration} and {rep.validation}",
+                  columns, rows, "Difference: validation minus calibration; a description, not a test (the test of "
+                                 "one solution above tests every parameter at once).",
+                  values=([c for c, _ in columns], values))
 
 
 # ---------------------------------------------------------------- bootstrap

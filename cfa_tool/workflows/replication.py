@@ -1,30 +1,51 @@
 """Does the structure hold in new data?  Calibrate on one sample, validate on another.
 
 * loose replication: the same model refitted in the validation sample;
-* tight replication: every parameter fixed at its calibration estimate, so the
-  validation chi-square tests the calibration solution itself (df = p(p+1)/2);
-* the cross-validation index CVI = F(S_validation, Sigma_calibration) (Cudeck &
-  Browne 1983), beside the CVI of the saturated model (Sigma = S_calibration)
-  for scale; smaller is better.
+* the test of one solution in both samples: the two-sample model with every parameter of the covariance
+  structure (loadings, error variances and covariances, factor variances and covariances) held equal across the
+  samples, against the two samples fitted separately; the chi-square difference has q degrees of freedom, q the
+  free parameters of the one-sample model's covariance structure (the likelihood-ratio test of equal covariance
+  structures, Jöreskog 1971).  It replaces a check that fixed every parameter at its calibration estimate and
+  tested the validation sample alone on p(p+1)/2 df: that check treats the calibration estimates as known, ignores
+  their sampling error and rejects a true replication too often unless the calibration sample is much larger;
+* the cross-validation index CVI = F(S_validation, Sigma_calibration) (Cudeck & Browne 1983), beside the CVI of
+  the saturated model (Sigma = S_calibration) for scale; smaller is better.  It is descriptive: no test.
 A split-half mode divides one data set at random (seeded) and runs both
 directions (double cross-validation; Cudeck & Browne 1983).
 
-Rows with gaps are kept as ``fit`` keeps them: a sample whose rows have gaps is fitted by
-full-information ML (its saturated moments by EM), and when the validation sample has gaps the tight
-check and the cross-validation index use its full-information discrepancy from the calibration
-covariance matrix, the means at their ML estimate given that matrix
-(estimation.fiml.fixed_covariance_discrepancy), which without gaps is the discrepancy above; the
-random halves are then halves of every row with an answer.  ``--incomplete-rows listwise`` uses the
-complete rows instead.
+The test of one solution with complete rows (normal-theory ML) needs no two-sample fit.  With the ML discrepancy
+F(S, Sigma) = log|Sigma| + tr(S Sigma^-1) - log|S| - p (Jöreskog 1969) and the samples' covariance matrices S_g of
+n_g rows (N = n_1 + n_2), the two-sample discrepancy with one Sigma for both is
 
-Ordinal items (and continuous items beside them) are fitted as ``fit`` fits them: least squares on
-polychoric (polyserial, Pearson) correlations.  The tight check then compares the validation
-sample's correlations r with those the calibration estimates imply, rho: N (r - rho)' W (r - rho)
-with the validation sample's weights W, adjusted for its mean and variance with the validation
-sample's Gamma (no parameter is estimated: U = W; Satorra 1989; Asparouhov & Muthén 2010 for the
-scale shift), df = p(p-1)/2; the cross-validation index is the same least-squares discrepancy
-(Cudeck & Browne 1983 define it for any discrepancy function), beside that of the calibration
-sample's own correlations.  Every chi-square of such a replication is the scale-shifted one.
+    sum_g n_g F(S_g, Sigma) = sum_g n_g [log|Sigma| + tr(S_g Sigma^-1) - log|S_g| - p]
+                            = N [log|Sigma| + tr(S_pooled Sigma^-1) - log|S_pooled| - p] + sum_g n_g (log|S_pooled| - log|S_g|)
+                            = N F(S_pooled, Sigma) + sum_g n_g (log|S_pooled| - log|S_g|),
+
+S_pooled = sum_g n_g S_g / N (tr is linear; add and subtract N log|S_pooled|).  The last sum does not depend on
+Sigma, so the minimum over the model's Sigma is reached at the one-sample fit to S_pooled, Sigma_hat:
+chi-square(equal) = N F(S_pooled, Sigma_hat) + sum_g n_g (log|S_pooled| - log|S_g|), on 2 p(p+1)/2 - q df; the
+separate fits give chi-square(separate) = sum_g n_g F(S_g, Sigma_hat_g) on 2 (p(p+1)/2 - q) df; the difference is
+on q df.  (The means are saturated in each sample, as the one-sample model leaves them.)
+
+Rows with gaps are kept as ``fit`` keeps them: a sample whose rows have gaps is fitted by full-information ML (its
+saturated moments by EM, the answers assumed missing at random), and the test of one solution is the likelihood-
+ratio difference of the two-sample full-information fit with every covariance-structure parameter held equal (the
+intercepts free in each sample) and the two separate fits.  The cross-validation index of a validation sample with
+gaps is its full-information discrepancy from the calibration covariance matrix, the means at their ML estimate
+given that matrix (estimation.fiml.fixed_covariance_discrepancy), which without gaps is the discrepancy above; the
+random halves are then halves of every row with an answer.  ``--incomplete-rows listwise`` uses the complete rows
+instead.
+
+Ordinal items (and continuous items beside them) are fitted as ``fit`` fits them: least squares on polychoric
+(polyserial, Pearson) correlations, rows with gaps pairwise (the answers assumed missing completely at random).
+The test of one solution is then the two-sample least-squares fit with the loadings, factor variances and
+covariances and error covariances held equal (the thresholds free in each sample, so that the latent responses'
+scales stay fixed in both, Wu & Estabrook 2016) against the two-sample fit without equalities, by the scale-shifted
+adjusted difference (Asparouhov & Muthén 2006), as the invariance ladder compares its steps.  The cross-validation
+index is the least-squares discrepancy of the validation sample's correlations from those the calibration
+estimates imply, with the validation sample's weights (Cudeck & Browne 1983 define it for any discrepancy
+function), beside that of the calibration sample's own correlations.  Every chi-square of such a replication is
+the scale-shifted one.
 """
 
 from __future__ import annotations
@@ -36,9 +57,9 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.model.parameters import one_group_only
-from cfa_tool.pipeline.inputs import (data_problems, load_data_for, load_spec, make_options, missing_codes_option,
+from cfa_tool.pipeline.inputs import (_described, data_problems, load_data_for, load_spec, make_options, missing_codes_option,
                                       odd_values_named, refit_missing_handling, screened)
-from cfa_tool.assessment.fit_indices import chi_square_p, rmsea_value
+from cfa_tool.assessment.fit_indices import chi_square_p
 from cfa_tool.data.answer_words import code_answer_words, coding_json, coding_record
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.readers import sheet_of_each
@@ -48,9 +69,39 @@ from cfa_tool.errors import DataError, EstimationError, OptionError, estimation_
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.pipeline.continuous import FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, fit_moments, listwise_problem
 from cfa_tool.language.spec import Spec
-from cfa_tool.method import MissingData, Weighting
+from cfa_tool.method import DifferenceMethod, MissingData, Weighting
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
+from cfa_tool.workflows.nesting import DifferenceTest
+
+
+@dataclass(frozen=True)
+class SampleRows:
+    """The rows of one sample: ``read`` from its data, ``analysed``, of those ``with_gaps`` (a missing answer on some
+    model variable), ``left_out`` (the rest of those read: rows with gaps under listwise deletion, else rows answering
+    none of the model's variables), and how rows with gaps were used (``missing``: full-information ML, pairwise
+    present rows of ordinal items, or listwise deletion)."""
+
+    read: int
+    analysed: int
+    with_gaps: int
+    left_out: int
+    missing: MissingData
+
+    def to_dict(self) -> dict:
+        return {"rows_read": self.read, "rows_analysed": self.analysed, "analysed_with_gaps": self.with_gaps,
+                "rows_left_out": self.left_out, "rows_with_gaps_used_by": self.missing.value}
+
+
+def sample_rows(moments, result: FitResult) -> SampleRows:
+    """The :class:`SampleRows` of a sample's moments (SampleMoments: the analysed rows, gaps as NaN; OrdinalMoments:
+    their answer codes, -1 for no answer) and the fit that used them."""
+    codes = getattr(moments, "codes", None)
+    if codes is not None:
+        gaps = int((np.asarray(codes) < 0).any(axis=1).sum())
+    else:
+        gaps = int(np.isnan(moments.rows).any(axis=1).sum()) if moments.rows is not None else 0
+    return SampleRows(moments.rows_read, moments.n_obs, gaps, moments.rows_read - moments.n_obs, result.method.missing)
 
 
 @dataclass(frozen=True, eq=False)
@@ -59,10 +110,9 @@ class Replication(Presentable):
     validation: str
     calibration_result: FitResult
     loose: FitResult
-    tight_chi_square: float
-    tight_df: int
-    tight_p_value: float
-    tight_rmsea: float
+    #: the test of one solution in both samples (module docstring): the two-sample fit with every covariance-structure
+    #: parameter held equal against the separate fits; its ``not_computed`` says why there is no p-value
+    same_solution: DifferenceTest
     cvi: float
     cvi_saturated: float
     #: ordinal items: every chi-square is the scale-shifted adjusted one of the least-squares fit
@@ -76,8 +126,16 @@ class Replication(Presentable):
     notes: tuple[str, ...] = ()
     #: the model's coding of answer words (data.answer_words.coding_record), as a fit's JSON keeps it
     answer_coding: tuple = ()
+    #: the rows of the calibration and of the validation sample (SampleRows)
+    rows: tuple = ()
 
     def to_dict(self) -> dict:
+        """The JSON of ``replicate --json`` without its wrapper (tool, version, command, report): this
+        replication as the one entry of ``replications`` (:meth:`Replications.to_dict`, the one builder)."""
+        return Replications((self,)).to_dict()
+
+    def entry(self) -> dict:
+        """This replication's entry of ``replications`` in the JSON."""
         loose = self.loose.fit.to_dict() if self.loose.fit is not None else None
 
         def robust(result) -> dict | None:  # the adjusted figures the report shows for ordinal items
@@ -89,14 +147,17 @@ class Replication(Presentable):
             **({"answer_coding": coding_json(self.answer_coding)} if self.answer_coding else {}),
             "split": self.split.to_dict() if self.split is not None else None,
             "calibration": {"data": self.calibration, "n_obs": self.calibration_result.n_obs,
+                            **({"rows": self.rows[0].to_dict()} if self.rows else {}),
                             "admissible": self.calibration_result.admissible,
                             "problems": [p.to_dict() for p in self.calibration_result.problems],
                             "fit": self.calibration_result.fit.to_dict(), "robust": robust(self.calibration_result)},
-            "validation": {"data": self.validation, "n_obs": self.loose.n_obs},
+            "validation": {"data": self.validation, "n_obs": self.loose.n_obs,
+                           **({"rows": self.rows[1].to_dict()} if self.rows else {})},
             "loose": {"fit": loose, "admissible": self.loose.admissible,
                       "problems": [p.to_dict() for p in self.loose.problems], "robust": robust(self.loose)},
-            "tight": {"chi_square": self.tight_chi_square, "df": self.tight_df, "p_value": self.tight_p_value,
-                      "rmsea": self.tight_rmsea, "test": "scale-shifted" if self.adjusted else "normal-theory"},
+            # renamed from "tight" (which held another statistic: the validation sample against the calibration
+            # estimates taken as known), so that a reader of the old block fails instead of misreading this one
+            "same_solution_test": self.same_solution.to_dict(),
             "cross_validation_index": self.cvi,
             "cross_validation_index_saturated": self.cvi_saturated,
         })
@@ -109,7 +170,7 @@ class Replications(Presentable):
     replications: tuple[Replication, ...]
 
     def to_dict(self) -> dict:
-        return {"replications": [r.to_dict() for r in self.replications]}
+        return {"replications": [r.entry() for r in self.replications]}
 
 
 def discrepancy(S: np.ndarray, sigma: np.ndarray) -> float:
@@ -128,9 +189,88 @@ def _has_gaps(moments: SampleMoments) -> bool:
     return moments.rows is not None and bool(np.isnan(moments.rows).any())
 
 
-def replicate_moments(spec: Spec, calibration: SampleMoments, validation: SampleMoments, **options) -> Replication:
+#: the classes of parameters held equal across the two samples by the test of one solution: every parameter of the
+#: covariance structure (language.spec.INVARIANCE_CLASSES); intercepts (and the thresholds of ordinal items) stay free
+SAME_SOLUTION_CLASSES = ("loadings", "residuals", "variances", "covariances")
+#: the two models the test of one solution compares (DifferenceTest.restricted, .general)
+ONE_SOLUTION = "one solution for both samples"
+OWN_SOLUTIONS = "each sample its own solution"
+
+
+def _one_solution_spec(spec: Spec) -> Spec:
+    """``spec`` with every covariance-structure parameter held equal across groups."""
+    return replace(spec, invariant=SAME_SOLUTION_CLASSES, noninvariant=())
+
+
+def _not_tested(why: str) -> DifferenceTest:
+    nan = float("nan")
+    return DifferenceTest(ONE_SOLUTION, OWN_SOLUTIONS, nan, 0, nan, DifferenceMethod.LIKELIHOOD_RATIO, nan, nan, why)
+
+
+def _likelihood_ratio(chi_equal: float, df_equal: int, separate: tuple[FitResult, FitResult]) -> DifferenceTest:
+    """The likelihood-ratio difference of the two-sample fit with one solution (``chi_equal`` on ``df_equal``)
+    and the two separate fits (their chi-squares and df add up: each against its own saturated model)."""
+    diff = chi_equal - sum(r.fit.chi_square for r in separate)
+    df = df_equal - sum(r.fit.df for r in separate)
+    nan = float("nan")
+    return DifferenceTest(ONE_SOLUTION, OWN_SOLUTIONS, diff, df, chi_square_p(max(diff, 0.0), df),
+                          DifferenceMethod.LIKELIHOOD_RATIO, nan, nan)
+
+
+def pooled_chi_square(spec: Spec, samples: tuple[SampleMoments, SampleMoments], options) -> tuple[float, int, FitResult]:
+    """(chi-square, df, fit to S_pooled) of the two-sample model with one covariance structure for complete rows:
+    N F(S_pooled, Sigma_hat) + sum_g n_g (log|S_pooled| - log|S_g|), Sigma_hat the one-sample fit to S_pooled
+    (derived in the module docstring), on 2 p(p+1)/2 - q df."""
+    names = samples[0].names
+
+    def in_order(m: SampleMoments) -> list[int]:
+        return [m.names.index(x) for x in names]
+
+    covariances = [m.covariance[np.ix_(in_order(m), in_order(m))] for m in samples]
+    n = [m.n_obs for m in samples]
+    N = sum(n)
+    S = sum(k * c for k, c in zip(n, covariances)) / N
+    means = sum(k * m.means[in_order(m)] for k, m in zip(n, samples)) / N  # not used by the covariance structure
+    fit = fit_moments(spec, SampleMoments(names, S, means, N, N, 0, "the two samples pooled"), options)
+    order = [fit.observed.index(x) for x in names]
+    log_det = log_det_pd(S)
+    chi = N * discrepancy(S, fit.implied_covariance[np.ix_(order, order)]) + \
+        float(sum(k * (log_det - log_det_pd(c)) for k, c in zip(n, covariances)))
+    moments = len(names) * (len(names) + 1) // 2
+    return chi, 2 * moments - (moments - fit.fit.df), fit
+
+
+def _same_solution(spec: Spec, calibration: SampleMoments, validation: SampleMoments, cal: FitResult,
+                   loose: FitResult, options: dict) -> DifferenceTest:
+    """The test of one solution in both samples (module docstring): in closed form for complete rows fitted by ML;
+    else (rows with gaps, or full-information ML asked for) the two-sample full-information fit with every
+    covariance-structure parameter held equal."""
+    if not (cal.converged and loose.converged):
+        return _not_tested("the model did not converge in the validation sample, so the two samples' own solutions "
+                           "are not at hand")
+    plain = not (_has_gaps(calibration) or _has_gaps(validation)) and cal.method.missing is not \
+        MissingData.FULL_INFORMATION and loose.method.missing is not MissingData.FULL_INFORMATION
+    if plain:
+        fit_options = replace(make_options({**options, "missing": MissingData.LISTWISE}), diagnostics=False)
+        with estimation_of("the two samples pooled"):
+            chi, df, pooled = pooled_chi_square(spec, (calibration, validation), fit_options)
+        if not pooled.converged:
+            return _not_tested(f"the model did not converge in the two samples pooled ({pooled.message})")
+        return _likelihood_ratio(chi, df, (cal, loose))
+    fit_options = replace(make_options({**options, "missing": MissingData.FULL_INFORMATION}), diagnostics=False)
+    with estimation_of("the two samples with one solution"):
+        both = fit_moments(_one_solution_spec(spec), [("calibration", calibration), ("validation", validation)],
+                           fit_options, "sample")
+    if not both.converged:
+        return _not_tested(f"the two-sample model with one solution did not converge ({both.message})")
+    return _likelihood_ratio(both.fit.chi_square, both.fit.df, (cal, loose))
+
+
+def replicate_moments(spec: Spec, calibration: SampleMoments, validation: SampleMoments,
+                      same_solution: DifferenceTest | None = None, **options) -> Replication:
     """The replication of continuous items; a sample whose rows have gaps (moments by EM) is fitted by
-    full-information ML, and the tight check of a validation sample with gaps is its full-information one."""
+    full-information ML, and so is the two-sample model of the test of one solution (``same_solution``: that
+    test made already, for the same two samples the other way round)."""
 
     def fit_options(moments: SampleMoments):
         missing = MissingData.FULL_INFORMATION if _has_gaps(moments) else MissingData.LISTWISE
@@ -142,6 +282,7 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
         raise EstimationError(f"the model did not converge in the calibration sample {calibration.source} ({cal.message})")
     with estimation_of(f"validation sample {validation.source}"):
         loose = fit_moments(spec, validation, fit_options(validation))
+    cal, loose = _described(cal, spec, None), _described(loose, spec, None)  # the methods paragraph's model
     order = [validation.names.index(n) for n in cal.observed]
     S_val = validation.covariance[np.ix_(order, order)]
     sigma_cal = cal.implied_covariance
@@ -155,20 +296,16 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
         F_saturated = fixed_covariance_discrepancy(rows, cal.sample_covariance, saturated)
     else:
         F, F_saturated = discrepancy(S_val, sigma_cal), discrepancy(S_val, cal.sample_covariance)
-    n = validation.n_obs
-    p = len(S_val)
-    df = p * (p + 1) // 2
-    chi = n * F
-    return Replication(
-        calibration.source, validation.source, cal, loose, chi, df, chi_square_p(chi, df), rmsea_value(chi, df, n),
-        F, F_saturated,
-    )
+    return Replication(calibration.source, validation.source, cal, loose,
+                       same_solution or _same_solution(spec, calibration, validation, cal, loose, options), F, F_saturated,
+                       rows=(sample_rows(calibration, cal), sample_rows(validation, loose)))
 
 
 def replicate_ordinal(spec: Spec, calibration, validation, method: Weighting | str = Weighting.DIAGONAL,
-                      **options) -> Replication:
-    """The replication of a model with ordinal items from each sample's OrdinalMoments (module docstring)."""
-    from cfa_tool.inference.adjusted import adjusted_test
+                      together: list | None = None, **options) -> Replication:
+    """The replication of a model with ordinal items from each sample's OrdinalMoments (module docstring);
+    ``together``: the two samples' moments as groups on shared answer categories (:func:`_two_samples`), which the
+    test of one solution fits, or a reason (str) why they could not be computed."""
     from cfa_tool.pipeline.ordinal import correlations_in_order, fit_ordinal
 
     fit_options = replace(make_options(options), diagnostics=False)
@@ -178,6 +315,7 @@ def replicate_ordinal(spec: Spec, calibration, validation, method: Weighting | s
         raise EstimationError(f"the model did not converge in the calibration sample {calibration.source} ({cal.message})")
     with estimation_of(f"validation sample {validation.source}"):
         loose = fit_ordinal(spec, validation, fit_options, method)
+    cal, loose = _described(cal, spec, None), _described(loose, spec, None)  # the methods paragraph's model
     pairs = np.tril_indices(len(cal.observed), -1)
     r, gamma = correlations_in_order(validation, cal.observed)
     weights = 1.0 / np.diag(gamma) if Weighting.parse(method, "the ordinal estimator") is Weighting.DIAGONAL \
@@ -187,12 +325,32 @@ def replicate_ordinal(spec: Spec, calibration, validation, method: Weighting | s
         e = r[pairs] - rho[pairs]
         return float(e @ (weights * e))
 
-    F = discrepancy_of(cal.implied_covariance)
-    n = validation.n_obs
-    df = len(pairs[0])
-    test = adjusted_test(n * F, df, None, weights, gamma)
-    return Replication(calibration.source, validation.source, cal, loose, test.scale_shifted, df, test.scale_shifted_p,
-                       rmsea_value(test.scale_shifted, df, n), F, discrepancy_of(cal.sample_covariance), adjusted=True)
+    test = _same_ordinal_solution(spec, together, loose, fit_options, method)
+    return Replication(calibration.source, validation.source, cal, loose, test, discrepancy_of(cal.implied_covariance),
+                       discrepancy_of(cal.sample_covariance), adjusted=True,
+                       rows=(sample_rows(calibration, cal), sample_rows(validation, loose)))
+
+
+def _same_ordinal_solution(spec: Spec, groups: list | str | None, loose: FitResult, fit_options,
+                           method) -> DifferenceTest:
+    """The scale-shifted difference of the two-sample least-squares fits with and without one solution, the
+    thresholds free in each sample (module docstring); ``groups``: the two samples' moments (or why they are
+    not at hand)."""
+    from cfa_tool.pipeline.ordinal import estimate_ordinal_groups, ordinal_difference
+    from cfa_tool.workflows.ordinal_compare import difference_record
+
+    if not loose.converged:
+        return _not_tested("the model did not converge in the validation sample, so the two samples' own solutions "
+                           "are not at hand")
+    if not isinstance(groups, list):
+        return _not_tested(groups or "the two samples' rows were not given together")
+    with estimation_of("the two samples, each its own solution"):
+        own = estimate_ordinal_groups(spec, groups, fit_options, method)
+    with estimation_of("the two samples with one solution"):
+        one = estimate_ordinal_groups(_one_solution_spec(spec), groups, fit_options, method)
+    if not (own.converged and one.converged):
+        return _not_tested("the two-sample least-squares fit did not converge")
+    return difference_record(ordinal_difference(one, own), ONE_SOLUTION, OWN_SOLUTIONS, None, None)
 
 
 def _ordinal_moments(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items: set[str], pairwise: bool):
@@ -201,6 +359,31 @@ def _ordinal_moments(spec: Spec, frame: pd.DataFrame, source: str, ordinal_items
     check_columns(spec, [str(c) for c in frame.columns], source)
     continuous = frozenset(x for x in spec.observed_names if x not in ordinal_items)
     return ordinal_moments(frame, spec.observed_names, source, continuous, pairwise=pairwise)
+
+
+#: the column that tells the two samples apart in :func:`_two_samples` (a name no file's column can have)
+SAMPLE_COLUMN = "\x00sample"
+
+
+def _two_samples(spec: Spec, frames: tuple[pd.DataFrame, pd.DataFrame], source: str, ordinal_items: set[str],
+                 pairwise: bool) -> list | str:
+    """The ordinal moments of the two samples as two groups on shared answer categories (data.groups, as the
+    invariance ladder computes them), or why they cannot be: an answer category that one sample lacks leaves its
+    threshold without an estimate there."""
+    from cfa_tool.data.groups import split_ordinal_moments
+    from cfa_tool.errors import CfaError
+
+    names = list(spec.observed_names)
+    both = pd.concat([frame[names].assign(**{SAMPLE_COLUMN: label})
+                      for frame, label in zip(frames, ("calibration", "validation"))], ignore_index=True)
+    continuous = frozenset(x for x in names if x not in ordinal_items)
+    try:
+        groups, _ = split_ordinal_moments(both, SAMPLE_COLUMN, spec.observed_names, source, "calibration", pairwise,
+                                          None, continuous)
+    except CfaError:
+        return ("an answer category of some ordinal item is missing from one sample, so the two samples' thresholds "
+                "cannot be estimated side by side")
+    return groups
 
 
 def _ordinal_setup(spec: Spec, ordinal, ordinal_estimator, options: dict,
@@ -218,7 +401,7 @@ def _ordinal_setup(spec: Spec, ordinal, ordinal_estimator, options: dict,
 
 def _same_categories(calibration, validation, frame: pd.DataFrame) -> None:
     """An error when an ordinal item of the validation sample has an answer category the calibration sample never
-    had: the two samples' answer scales differ, so the calibration's thresholds and the tight check cannot carry
+    had: the two samples' answer scales differ, so the calibration's thresholds and the cross-validation index cannot carry
     over (as scores of other data refuse such an answer, workflows.factor_scores._check_categories)."""
     for name, seen, cats in zip(validation.names, calibration.categories, validation.categories):
         new = [c for c in cats if c not in set(seen)]
@@ -320,7 +503,9 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
             cal_moments = _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise)
             val_moments = _ordinal_moments(spec, val_frame, val_source, ordinal_items, pairwise)
             _same_categories(cal_moments, val_moments, val_frame)
-            result = replicate_ordinal(spec, cal_moments, val_moments, method, **options)
+            together = _two_samples(spec, (cal_frame, val_frame), f"{cal_source} and {val_source}", ordinal_items,
+                                    pairwise)
+            result = replicate_ordinal(spec, cal_moments, val_moments, method, together, **options)
         else:
             result = replicate_moments(spec, _moments(spec, cal_frame, cal_source, missing),
                                        _moments(spec, val_frame, val_source, missing), **options)
@@ -418,9 +603,14 @@ def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal
     if ordinal_items:
         ma = _ordinal_moments(spec, a, f"{source} (half A, seed {seed})", ordinal_items, pairwise)
         mb = _ordinal_moments(spec, b, f"{source} (half B, seed {seed})", ordinal_items, pairwise)
-        return (replicate_ordinal(spec, ma, mb, method, **options),
-                replicate_ordinal(spec, mb, ma, method, **options)), rows
+        first = replicate_ordinal(spec, ma, mb, method, _two_samples(spec, (a, b), source, ordinal_items, pairwise),
+                                  **options)
+        # one test of one solution for both directions: the same two halves (not fitted twice)
+        second = replace(replicate_ordinal(spec, mb, ma, method, "", **options), same_solution=first.same_solution)
+        return (first, second), rows
     ma = sample_moments(a, spec.observed_names, f"{source} (half A, seed {seed})", missing=handling)
     mb = sample_moments(b, spec.observed_names, f"{source} (half B, seed {seed})", missing=handling)
 
-    return (replicate_moments(spec, ma, mb, **options), replicate_moments(spec, mb, ma, **options)), rows
+    first = replicate_moments(spec, ma, mb, **options)
+    # one test of one solution for both directions: the same two halves (not fitted twice)
+    return (first, replicate_moments(spec, mb, ma, first.same_solution, **options)), rows

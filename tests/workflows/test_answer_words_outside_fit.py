@@ -42,7 +42,7 @@ def test_split_half_reads_missing_codes_among_words_as_fit_does_and_says_how_it_
     numbers = cfa_tool.split_half(PLAIN, coded / "numbers.csv", seed=3, missing_codes=(-99,))
     for a, b in zip(words, numbers):
         assert abs(a.calibration_result.fit.chi_square - b.calibration_result.fit.chi_square) < 1e-10
-        assert abs(a.tight_chi_square - b.tight_chi_square) < 1e-8
+        assert abs(a.same_solution.chi_square_difference - b.same_solution.chi_square_difference) < 1e-8
         assert CODING in a.notes and not any("recorded as words" in n for n in b.notes)
     out = tmp_path / "split.json"
     assert main(["replicate", str(coded / "words.cfa"), "--data", str(coded / "words.csv"), "--missing-codes=-99",
@@ -58,10 +58,10 @@ def test_split_half_reads_missing_codes_among_words_as_fit_does_and_says_how_it_
 def test_replication_on_new_data_codes_both_files_and_says_so(coded):
     words = cfa_tool.replicate(MODEL, coded / "words2.csv", coded / "words.csv", missing_codes=(-99,))
     numbers = cfa_tool.replicate(PLAIN, coded / "numbers2.csv", coded / "numbers.csv", missing_codes=(-99,))
-    assert abs(words.tight_chi_square - numbers.tight_chi_square) < 1e-8
+    assert abs(words.same_solution.chi_square_difference - numbers.same_solution.chi_square_difference) < 1e-8
     assert abs(words.cvi - numbers.cvi) < 1e-10
     assert words.notes.count(CODING) == 1  # one coding, said once for both files
-    assert "answer_coding" in words.to_dict() and "answer_coding" not in numbers.to_dict()
+    assert "answer_coding" in words.entry() and "answer_coding" not in numbers.entry()
 
 
 def test_compare_codes_each_later_models_items_once_with_the_missing_codes(coded, tmp_path):

@@ -64,7 +64,9 @@ def test_compare_needs_two_models(hs_data):
 
 def test_validating_on_the_calibration_sample_reproduces_its_fit(hs_data):
     # With validation data = calibration data, the CVI is the minimum discrepancy F_min
-    # (definition, Cudeck & Browne 1983) and the tight chi-square is N F_min on p(p+1)/2 df.
+    # (definition, Cudeck & Browne 1983), and the test of one solution in both samples finds no difference: the
+    # pooled covariance matrix is each sample's, so chi-square(equal) = 2 N F_min = the separate fits' sum, on
+    # q = 45 - 24 = 21 df (the one-sample model's free parameters).
     # the same rows, given as moments (the command and replicate() refuse the same rows as validation data)
     from cfa_tool.data.moments import sample_moments
     from cfa_tool.workflows.replication import replicate_moments
@@ -74,8 +76,8 @@ def test_validating_on_the_calibration_sample_reproduces_its_fit(hs_data):
     rep = replicate_moments(spec, moments, moments)
     own = rep.calibration_result.fit
     assert rep.cvi == pytest.approx(own.chi_square / 301, rel=1e-9)
-    assert rep.tight_chi_square == pytest.approx(own.chi_square, rel=1e-9)
-    assert rep.tight_df == 45
+    assert rep.same_solution.chi_square_difference == pytest.approx(0.0, abs=1e-8)
+    assert rep.same_solution.df_difference == 21 and rep.same_solution.p_value == pytest.approx(1.0)
     assert rep.loose.fit.chi_square == pytest.approx(own.chi_square, rel=1e-9)
     assert rep.cvi_saturated == pytest.approx(0.0, abs=1e-12)
 

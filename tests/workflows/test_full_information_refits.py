@@ -1,6 +1,6 @@
 """Full-information refits of rows with gaps in bootstrap, cutoffs and replicate: each refit is the fit of its
 sample, the bootstrap's spread matches the observed-information standard errors, the influence values match
-the jackknife, and the tight check of replicate matches a likelihood maximised by scipy."""
+the jackknife, and the cross-validation index of replicate matches a likelihood maximised by scipy."""
 
 from __future__ import annotations
 
@@ -186,7 +186,7 @@ def _minus_two_log_likelihood(rows: np.ndarray, mean: np.ndarray, sigma: np.ndar
     return -2.0 * total
 
 
-def test_replicate_with_gaps_fits_each_sample_as_fit_does_and_its_tight_check_is_a_likelihood_ratio():
+def test_replicate_with_gaps_fits_each_sample_as_fit_does_and_its_cross_validation_index_is_a_likelihood_ratio():
     from scipy.optimize import minimize
 
     calibration, validation = with_gaps(250, 31), with_gaps(200, 41)
@@ -195,7 +195,7 @@ def test_replicate_with_gaps_fits_each_sample_as_fit_does_and_its_tight_check_is
         direct = cfa_tool.fit(TWO_FACTORS, data)
         assert result.method.missing is MissingData.FULL_INFORMATION
         assert result.fit.chi_square == pytest.approx(direct.fit.chi_square, rel=1e-6)
-    # the tight check: -2 log L with Sigma fixed at the calibration's and the means maximised, minus that of the
+    # N times the cross-validation index: -2 log L with Sigma fixed at the calibration's and the means maximised, minus that of the
     # saturated model (both maximised here by scipy, from the tool's estimates as starts only)
     rows = validation.to_numpy()
     sigma = rep.calibration_result.implied_covariance
@@ -210,8 +210,11 @@ def test_replicate_with_gaps_fits_each_sample_as_fit_does_and_its_tight_check_is
 
     best = minimize(saturated, np.concatenate([m, np.linalg.cholesky(S)[lower]]), method="BFGS")
     assert best.fun <= _minus_two_log_likelihood(rows, m, S) + 1e-6
-    assert rep.tight_chi_square == pytest.approx(fixed.fun - best.fun, rel=1e-4)
-    assert rep.tight_df == 21 and rep.cvi == pytest.approx(rep.tight_chi_square / rep.loose.n_obs)
+    assert rep.loose.n_obs * rep.cvi == pytest.approx(fixed.fun - best.fun, rel=1e-4)
+    # the test of one solution in both samples: the two-sample full-information fit against the separate ones, on
+    # q = 13 df (4 free loadings, 6 error variances, 2 factor variances and 1 covariance: 21 moments - 8 df)
+    assert rep.same_solution.df_difference == 13 and rep.calibration_result.fit.df == 8
+    assert rep.same_solution.method == 'likelihood ratio' and 0 < rep.same_solution.p_value < 1
     from cfa_tool.reporting.workflow_tables import replication_report
 
     assert any(note.startswith("Rows with gaps: a sample whose rows have gaps is fitted by full-information ML")
