@@ -20,6 +20,7 @@ _RESULT_CLASSES = (
     (ResultKind.CUTOFFS, "cfa_tool.workflows.cutoffs", ("CutoffResult",)),
     (ResultKind.POWER, "cfa_tool.workflows.power", ("PowerResult",)),
     (ResultKind.POWER_SIMULATION, "cfa_tool.workflows.montecarlo", ("MonteCarloPower", "PowerCurve")),
+    (ResultKind.POWER_SIMULATION, "cfa_tool.workflows.group_power", ("InvariancePower",)),
     (ResultKind.SIMULATE, "cfa_tool.workflows.simulation", ("SimulatedData",)),
     (ResultKind.SCORES, "cfa_tool.workflows.factor_scores", ("ScoreResult",)),
     (ResultKind.EXPLORE, "cfa_tool.workflows.explore", ("ExploreResult",)),
@@ -52,6 +53,11 @@ def report_of(result: object) -> Report:
         from cfa_tool.reporting.explore_report import explore_report
 
         return explore_report(result)
+    group_power = sys.modules.get("cfa_tool.workflows.group_power")  # a plan with groups: its own report
+    if group_power is not None and isinstance(result, group_power.InvariancePower):
+        from cfa_tool.reporting.group_power_report import invariance_power_report
+
+        return invariance_power_report(result)
     if kind is ResultKind.ALIGN:
         from cfa_tool.reporting.align_report import alignment_report
 
