@@ -51,7 +51,7 @@ def _inadmissible_cautions(result) -> tuple[str, ...]:
 def invariance_power_report(result) -> Report:
     labels = result.labels
     levels = [result.designs[0].steps[0].versus] + [s.level for s in result.designs[0].steps]
-    lines = [f"Groups: {labels[0]} (the reference group) and {word_list(list(labels[1:]))}; each replication draws "
+    lines = [f"Groups: {word_list([f'{labels[0]} (the reference group)', *labels[1:]])}; each replication draws "
              f"every group's rows from its population and fits the {word_list(levels)} models as the invariance "
              f"command fits them, each tested against the one before by {result.method.phrase} at alpha "
              f"{unit(result.alpha, 2)}.",
