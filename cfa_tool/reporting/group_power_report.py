@@ -60,6 +60,13 @@ def invariance_power_report(result) -> Report:
                                                          if len(result.designs) > 1 else "")
                  for d in result.designs) + ".",
              _difference_words(result)]
+    declared = result.population.spec.noninvariant
+    if declared:  # partial invariance declared in the model file: the ladder leaves these free
+        observed = frozenset(result.population.observed)
+        named = word_list([parameter_words(r.kind, r.names, observed=observed) for r in declared])
+        lines.append(f"The model declares {named} "
+                     f"not equal across groups ('noninvariant'): each level leaves it free, as the invariance command "
+                     f"does, so the steps test partial invariance.")
     shared = result.population.shared
     if shared.defaulted:
         lines.append(f"{len(shared.defaulted)} population values shared by the groups took the standardized defaults "

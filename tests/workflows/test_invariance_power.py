@@ -208,3 +208,13 @@ def test_the_command_writes_its_report_in_the_json(tmp_path, capsys):
     assert saved["designs"][0]["steps"][1]["measures"] == "power"
     assert main(["report", str(out)]) == 0
     assert "Rejections of each step of the ladder" in capsys.readouterr().out
+
+
+def test_a_declared_noninvariant_parameter_is_left_free_at_each_level():
+    # 'noninvariant intercept(x2)' exempts the intercept that differs: the partially invariant scalar model
+    # reproduces the population (noncentrality 0, a false-alarm rate) and has one equality fewer (2 df, not 3).
+    model = SHIFTED + "noninvariant intercept(x2)\n"
+    result = invariance_power(model, "north=200,south=200", replications=2, workers=1)
+    metric, scalar = result.designs[0].steps
+    assert (scalar.role, scalar.df, scalar.noncentrality) == (StepRole.FALSE_ALARM, 2, 0.0)
+    assert "The model declares the intercept of x2 not equal across groups" in " ".join(result.summary().split())
