@@ -21,7 +21,7 @@ import numpy as np
 from cfa_tool import options as check
 from cfa_tool.assessment.admissibility import counted_problems, replicated_problems
 from cfa_tool.data.moments import SampleMoments
-from cfa_tool.errors import CfaError, ModelError, OptionError
+from cfa_tool.errors import CfaError, EstimationError, ModelError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import DifferenceMethod
 from cfa_tool.numerics import distributions as dist
@@ -203,8 +203,9 @@ def _population_steps(population: GroupPopulation, ladder, sizes: tuple[int, ...
     fits = _fit_ladder(ladder, groups, None)
     if len(fits) < len(ladder) or not fits[-1][0].converged:
         level = ladder[len(fits) - 1][0]
-        raise ModelError(f"the {level} model could not be fitted to the population's moments (it did not converge): "
-                         f"check the population values")
+        raise EstimationError(f"the {level} model could not be fitted to the population's moments (it did not "
+                              f"converge): "
+                              f"check the population values")
     out = []
     for est, _, _ in fits:
         df = est.likelihood.n_statistics - est.table.n_free
@@ -283,8 +284,8 @@ def _design_power(ladder, design: tuple[int, ...], replications: int, draws: lis
     """Each step's share of rejections among the replications whose every fit converged."""
     ok = [d for d in draws if d.converged]
     if not ok:
-        raise ModelError(f"no replication converged at group sizes {', '.join(map(str, design))}; check the population "
-                         f"values and the group sizes")
+        raise EstimationError(f"no replication converged at group sizes {', '.join(map(str, design))}; check the "
+                              f"population values and the group sizes")
     steps = []
     for k in range(1, len(ladder)):
         df_before, lam_before, holds_before = truth[k - 1]
