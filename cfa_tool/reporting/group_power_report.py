@@ -60,6 +60,11 @@ def invariance_power_report(result) -> Report:
                                                          if len(result.designs) > 1 else "")
                  for d in result.designs) + ".",
              _difference_words(result)]
+    named = result.population.named_groups()
+    unnamed = [label for label in labels if label not in named]
+    if named and unnamed:  # groups of the sizes that no 'in group' statement names: said, so a misspelling shows
+        lines.append(f"No 'in group' statement names {word_list(unnamed)}: "
+                     f"{'their populations are' if len(unnamed) > 1 else 'its population is'} the shared one.")
     declared = result.population.spec.noninvariant
     if declared:  # partial invariance declared in the model file: the ladder leaves these free
         observed = frozenset(result.population.observed)

@@ -63,8 +63,9 @@ class GroupPopulation:
     def observed(self) -> tuple[str, ...]:
         return self.shared.observed
 
-    def differing_kinds(self) -> frozenset[str]:
-        return frozenset(d.kind for d in self.differences)
+    def named_groups(self) -> tuple[str, ...]:
+        """The groups the model's 'in group' statements name."""
+        return groups_named(self.spec)
 
 
 def designs_of(value: object) -> tuple[tuple[str, ...], tuple[tuple[int, ...], ...]]:
@@ -120,10 +121,15 @@ def _shared_only(spec: Spec) -> Spec:
                    equal=tuple(g for g in spec.equal if all(kept(r) for r in g)), noninvariant=())
 
 
+def groups_named(spec: Spec) -> tuple[str, ...]:
+    """The groups that the model's 'in group' statements name, in the order of the statements."""
+    return tuple(dict.fromkeys(r.group for r in all_refs(spec) if r.group is not None))
+
+
 def check_groups_named(spec: Spec, labels: tuple[str, ...]) -> None:
-    """A one-line error naming the groups that the model's 'in group' statements name and the sizes do not give."""
-    named = list(dict.fromkeys(r.group for r in all_refs(spec) if r.group is not None))
-    missing = [g for g in named if g not in labels]
+    """A one-line error naming the groups that the model's 'in group' statements name and the sizes do not give (a
+    group of the sizes that no statement names takes the shared values, which the report says)."""
+    missing = [g for g in groups_named(spec) if g not in labels]
     if missing:
         raise OptionError(f"the model file names {'groups' if len(missing) > 1 else 'group'} "
                           f"{', '.join(repr(g) for g in missing)} in 'in group' statements, which "

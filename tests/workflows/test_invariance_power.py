@@ -131,6 +131,7 @@ def test_a_step_after_a_misfitting_step_is_said_to_be_neither():
 
     report = report_of(result)
     assert [row[1] for row in report.tables[0].rows] == ["power", "rejection rate after a misfitting step"]
+    assert "No 'in group' statement names north: its population is the shared one." in report.lines
     assert any("neither a power nor a false-alarm rate" in c for c in report.cautions)
     assert report.tables[1].rows[0][:2] == ("loading of x3 on f", "south")
 
