@@ -171,6 +171,8 @@ class Option(enum.Enum):
     STRATA = ("--strata", "strata")
     CATEGORIES = ("--categories", "categories")
     POPULATION_FROM = ("--population-from", "population")
+    GROUP_SIZES = ("--group-sizes", "group_sizes")
+    HIGHEST_LEVEL = ("--highest-level", "highest_level")
     DECIDE_BY = ("--decide-by", "decide_by")
     MAX_ITERATIONS = ("--max-iterations", "max_iterations")
     SCORE_METHODS = ("--method", "methods", None, True)

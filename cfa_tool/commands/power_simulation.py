@@ -1,4 +1,5 @@
-"""``cfa-tool power-simulation``: Monte Carlo power, bias and coverage for a model with population values."""
+"""``cfa-tool power-simulation``: Monte Carlo power, bias and coverage for a model with population values; with
+``--group-sizes``, the power of each step of the invariance ladder for a design with several groups."""
 
 from __future__ import annotations
 
@@ -9,10 +10,21 @@ from cfa_tool.commands.common import check_output, emit, inputs_of, progress
 
 
 def add_parser(sub) -> None:
-    mc = sub.add_parser("power-simulation", help="Monte Carlo power, bias and coverage for a model with population values")
-    mc.add_argument("model", metavar="MODEL", help="model file; 'start' and 'fix' statements give population values")
-    mc.add_argument("--n", required=True, help="sample size of each simulated data set, or several separated by commas "
+    mc = sub.add_parser("power-simulation", help="Monte Carlo power, bias and coverage for a model with population "
+                                                 "values; with --group-sizes, power to detect differences between "
+                                                 "groups (measurement invariance)")
+    mc.add_argument("model", metavar="MODEL", help="model file; 'start' and 'fix' statements give population values, "
+                    "and with --group-sizes 'in group NAME: start ...' gives a value that differs in one group")
+    mc.add_argument("--n", help="sample size of each simulated data set, or several separated by commas "
                     "(100,200,400) for power by sample size")
+    mc.add_argument("--group-sizes", metavar="GROUP=N,...", help="plan an invariance study instead: the groups and "
+                    "the rows of each (north=300,south=200; the first is the reference group); several designs with "
+                    "sizes separated by slashes (north=100/200,south=100/200: the first sizes together, then the "
+                    "second). Each data set is fitted by the invariance ladder and the report gives how often each "
+                    "step was rejected: its power where the groups differ, its false-alarm rate where they do not")
+    mc.add_argument("--highest-level", metavar="LEVEL", default=None,
+                    help="with --group-sizes: the last level of the ladder to fit: metric, scalar (the default) or "
+                         "strict")
     mc.add_argument("--replications", type=int, default=500, help="number of data sets (default 500)")
     mc.add_argument("--alpha", type=float, default=0.05, help="significance level (default .05)")
     mc.add_argument("--population-from", metavar="RESULT", help="take the population values from an earlier fit of "
@@ -24,12 +36,45 @@ def add_parser(sub) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    from cfa_tool.errors import OptionError
     from cfa_tool.language.parser import read_model_file
+
+    if args.group_sizes is not None:
+        given = [flag for flag, value in (("--n", args.n), ("--categories", args.categories),
+                                          ("--ordinal-estimator", args.ordinal_estimator),
+                                          ("--population-from", args.population_from)) if value is not None]
+        if given:
+            why = ("the group sizes replace it" if given[0] == "--n" else
+                   "planning with groups takes its population from the model file and simulates continuous answers")
+            raise OptionError(f"{given[0]} cannot apply with --group-sizes: {why}; leave it out")
+    elif args.n is None:
+        raise OptionError("give the sample size (--n 300), or the groups and their sizes to plan an invariance study "
+                          "(--group-sizes north=300,south=200)")
+    elif args.highest_level is not None:
+        raise OptionError("--highest-level is the last level of the invariance ladder, fitted only with "
+                          "--group-sizes; leave it out or give the groups")
+    check_output(args, inputs_of(args))
+    spec = read_model_file(args.model)
+    if args.group_sizes is None:
+        from cfa_tool.model.parameters import group_statement
+
+        statement = group_statement(spec)
+        if statement is not None:
+            raise OptionError(f"the model has {statement}, which needs groups: give the groups and their sizes to "
+                              f"plan an invariance study (--group-sizes north=300,south=200), or remove it for the "
+                              f"power of one group")
+    if args.group_sizes is not None:
+        from cfa_tool.workflows.group_power import DEFAULT_HIGHEST, invariance_power
+
+        with progress(args.command) as advance:
+            result = invariance_power(spec, args.group_sizes, args.replications, args.seed,
+                                      args.alpha, args.workers, args.scheduler, advance,
+                                      args.highest_level or DEFAULT_HIGHEST)
+        return emit(args, result)
     from cfa_tool.workflows.montecarlo import monte_carlo_power
 
-    check_output(args, inputs_of(args))
     with progress(args.command) as advance:
-        result = monte_carlo_power(read_model_file(args.model), args.n, args.replications, args.seed, args.alpha,
+        result = monte_carlo_power(spec, args.n, args.replications, args.seed, args.alpha,
                                    args.workers, args.scheduler, advance, args.population_from, args.categories,
                                    args.ordinal_estimator)
     return emit(args, result)

@@ -9,7 +9,7 @@ from cfa_tool.errors import OptionError
 from cfa_tool.reporting.document import Report, ResultKind
 
 
-# the classes of each command's result: (kind, module, class names), the fit's first
+# the classes of each command's result: (kind, module or modules, class names), the fit's first
 _RESULT_CLASSES = (
     (ResultKind.FIT, "cfa_tool.pipeline.results", ("FitResult",)),
     (ResultKind.CHECK, "cfa_tool.pipeline.results", ("CheckResult",)),
@@ -19,7 +19,8 @@ _RESULT_CLASSES = (
     (ResultKind.BOOTSTRAP, "cfa_tool.workflows.bootstrap", ("BootstrapResult",)),
     (ResultKind.CUTOFFS, "cfa_tool.workflows.cutoffs", ("CutoffResult",)),
     (ResultKind.POWER, "cfa_tool.workflows.power", ("PowerResult",)),
-    (ResultKind.POWER_SIMULATION, "cfa_tool.workflows.montecarlo", ("MonteCarloPower", "PowerCurve")),
+    (ResultKind.POWER_SIMULATION, ("cfa_tool.workflows.montecarlo", "cfa_tool.workflows.group_power"),
+     ("MonteCarloPower", "PowerCurve", "InvariancePower")),  # one group; several groups (--group-sizes)
     (ResultKind.SIMULATE, "cfa_tool.workflows.simulation", ("SimulatedData",)),
     (ResultKind.SCORES, "cfa_tool.workflows.factor_scores", ("ScoreResult",)),
     (ResultKind.EXPLORE, "cfa_tool.workflows.explore", ("ExploreResult",)),
@@ -30,10 +31,12 @@ _RESULT_CLASSES = (
 def kind_of(result: object) -> ResultKind:
     """The command whose result ``result`` is.  A module not yet imported holds no class of ``result``, so it is
     passed over, not imported (the workflows' modules would double the start of ``cfa-tool fit``)."""
-    for kind, name, classes in _RESULT_CLASSES:
-        module = sys.modules.get(name)
-        if module is not None and isinstance(result, tuple(getattr(module, c) for c in classes)):
-            return kind
+    for kind, names, classes in _RESULT_CLASSES:
+        for name in (names,) if isinstance(names, str) else names:  # results in several modules: each module's
+            module = sys.modules.get(name)
+            if module is not None and isinstance(result, tuple(getattr(module, c) for c in classes
+                                                               if hasattr(module, c))):  # classes among them
+                return kind
     raise TypeError(f"no report for a {type(result).__name__}")
 
 
@@ -52,6 +55,11 @@ def report_of(result: object) -> Report:
         from cfa_tool.reporting.explore_report import explore_report
 
         return explore_report(result)
+    group_power = sys.modules.get("cfa_tool.workflows.group_power")  # a plan with groups: its own report
+    if group_power is not None and isinstance(result, group_power.InvariancePower):
+        from cfa_tool.reporting.group_power_report import invariance_power_report
+
+        return invariance_power_report(result)
     if kind is ResultKind.ALIGN:
         from cfa_tool.reporting.align_report import alignment_report
 

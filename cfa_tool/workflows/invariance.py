@@ -338,8 +338,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             if progress is not None and freed_here:  # a refit of the partial search
                 progress(0, 1)
             # exemptions apply from the level that holds their class equal
-            level_spec = replace(spec, invariant=classes, noninvariant=tuple(r for r in exceptions
-                                                                          if _exempts_a_class_of(r, classes)))
+            level_spec = spec_of_level(spec, classes, exceptions)
             with threads:
                 est = ladder.estimate(level_spec, groups, fit_options, start)
                 # rows without a group label count as read, as fit counts them (the methods paragraph)
@@ -477,10 +476,24 @@ def unsound_basis(steps, k: int):
                  if not s.result.converged or not s.result.admissible or (i > 0 and not s.holds)), None)
 
 
+def spec_of_level(spec: Spec, classes: tuple[str, ...], exceptions) -> Spec:
+    """The model of one level of the ladder: ``spec`` with the parameters of ``classes`` held equal across groups,
+    less the exemptions among ``exceptions`` ('noninvariant' statements, parameters a partial search freed) that
+    concern those classes (an exemption applies from the level that holds its class equal)."""
+    return replace(spec, invariant=classes, noninvariant=tuple(r for r in exceptions
+                                                              if _exempts_a_class_of(r, classes)))
+
+
+def rejected_by_test(test: DifferenceTest, alpha: float) -> bool:
+    """Whether a step's difference test rejects it at ``alpha`` (a test that could not be computed rejects
+    nothing)."""
+    return bool(test.p_value < alpha)
+
+
 def _step_holds(rule: DecisionRule, test: DifferenceTest, alpha: float, result: FitResult, general: FitResult,
                 level: str) -> bool:
     """Whether a step holds against the step before by ``rule``."""
-    by_test = not (test.p_value < alpha)
+    by_test = not rejected_by_test(test, alpha)
     if rule is DecisionRule.DIFFERENCE_TEST:
         return by_test
     restricted, before = _fit_values(result), _fit_values(general)

@@ -1,0 +1,136 @@
+"""The report of a sample-size plan for an invariance study (cfa_tool.workflows.group_power): how often each step
+of the ladder was rejected, per design, with the population drawn from.  Problems of the replicated solutions
+come first."""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+
+from cfa_tool.model.description import parameter_words
+from cfa_tool.reporting.document import Report, ResultKind
+from cfa_tool.reporting.numbers import num, unit, word_list
+from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, _table
+from cfa_tool.reporting.workflow_tables import _notice, population_parts
+from cfa_tool.workflows.group_power import StepRole
+
+#: why a step after a misfitting one measures neither power nor a false-alarm rate
+AFTER_MISFIT_CAUTION = ("A step tested after a step whose equalities already fail in the population compares two "
+                        "models that both misfit: its rejection share is neither a power nor a false-alarm rate (the "
+                        "invariance command marks such a step as conditional on a rejected step).")
+
+
+def _sizes(labels, sizes) -> str:
+    return ", ".join(f"{label} {n}" for label, n in zip(labels, sizes))
+
+
+def _difference_words(result) -> str:
+    """The population values in which the groups differ, in words."""
+    observed = result.population.observed
+    parts = [f"{parameter_words(d.kind, d.variables, observed=frozenset(observed))} ({d.group} {num(d.value, 2)}, "
+             f"{result.labels[0]} {num(d.reference_value, 2)})" for d in result.population.differences]
+    if not parts:
+        return ("The groups share every population value, so every step's equalities hold in the population and its "
+                "rejection share is a false-alarm rate (nominal alpha).")
+    return f"The populations of the groups differ in {word_list(parts)}; every other value is shared."
+
+
+def _inadmissible_cautions(result) -> tuple[str, ...]:
+    """A caution, first, per design and level at which some converged replications' solutions are not admissible."""
+    out = []
+    for d in result.designs:
+        where = f" at group sizes {_sizes(result.labels, d.sizes)}" if len(result.designs) > 1 else ""
+        found = [("configural", d.configural_inadmissible, d.configural_problems)]
+        found += [(s.level, s.inadmissible, s.inadmissible_named) for s in d.steps]
+        out += [f"The {level} model's solution is not admissible, as a single fit would judge it, in {count} of the "
+                f"{d.converged} converged replications{where} ({named}); they are included in the rejection shares"
+                for level, count, named in found if count]
+    return tuple(out)
+
+
+def invariance_power_report(result) -> Report:
+    labels = result.labels
+    levels = [result.designs[0].steps[0].versus] + [s.level for s in result.designs[0].steps]
+    lines = [f"Groups: {word_list([f'{labels[0]} (the reference group)', *labels[1:]])}; each replication draws "
+             f"every group's rows from its population and fits the {word_list(levels)} models as the invariance "
+             f"command fits them, each tested against the one before by {result.method.phrase} at alpha "
+             f"{unit(result.alpha, 2)}.",
+             "Converged (every model of the ladder): " + "; ".join(
+                 f"{d.converged} of {d.replications}" + (f" at {_sizes(labels, d.sizes)}"
+                                                         if len(result.designs) > 1 else "")
+                 for d in result.designs) + ".",
+             _difference_words(result)]
+    named = result.population.named_groups()
+    unnamed = [label for label in labels if label not in named]
+    if named and unnamed:  # groups of the sizes that no 'in group' statement names: said, so a misspelling shows
+        lines.append(f"No 'in group' statement names {word_list(unnamed)}: "
+                     f"{'their populations are' if len(unnamed) > 1 else 'its population is'} the shared one.")
+    declared = result.population.spec.noninvariant
+    if declared:  # partial invariance declared in the model file: the ladder leaves these free
+        observed = frozenset(result.population.observed)
+        named = word_list([parameter_words(r.kind, r.names, observed=observed) for r in declared])
+        lines.append(f"The model declares {named} "
+                     f"not equal across groups ('noninvariant'): each level leaves it free, as the invariance command "
+                     f"does, so the steps test partial invariance.")
+    shared = result.population.shared
+    if shared.defaulted:
+        lines.append(f"{len(shared.defaulted)} population values shared by the groups took the standardized defaults "
+                     f"(listed in the population table).")
+    several = len(result.designs) > 1  # the sizes of one design are in the title
+    rows, values = [], []
+    for d in result.designs:
+        for s in d.steps:
+            rows.append([_sizes(labels, d.sizes)] * several + [
+                f"{s.level} against {s.versus}", s.role.value, str(s.df), unit(s.share, 2),
+                unit(s.standard_error, 3), unit(s.approximate_power, 2), str(s.inadmissible)])
+            values.append([_sizes(labels, d.sizes), s.level, s.versus, s.role.value, s.df, s.share,
+                           s.standard_error, s.approximate_power, s.noncentrality, s.inadmissible])
+    table = _table("invariance_power", "Rejections of each step of the ladder",
+                   [("Group sizes", "l")] * several + [
+                       ("Step", "l"), ("Measures", "l"), ("df", "r"), ("Share rejecting", "r"), ("MC SE", "r"),
+                       ("Approximation", "r"), ("Not admissible", "r")], rows,
+                   f"Share rejecting: share of the replications whose every model converged in which the difference "
+                   f"test rejected the step at alpha {unit(result.alpha, 2)}: the power when the step's equalities do "
+                   f"not hold in the population, the false-alarm rate when they do (nominal "
+                   f"{unit(result.alpha, 2)}). MC SE: its Monte Carlo standard error, sqrt(p(1 - p)/R). Approximation: "
+                   f"the rejection probability of the noncentral chi-square whose noncentrality is N times the rise in "
+                   f"the minimum discrepancy when the step's model and the one before are fitted to the population "
+                   f"itself (Satorra & Saris 1985). Not admissible: replications whose fit of the step's model is not "
+                   f"admissible (kept in the shares).",
+                   values=(["Group sizes", "Level", "Tested against", "Measures", "df", "Share rejecting",
+                            "Monte Carlo SE", "Noncentral chi-square approximation", "Noncentrality",
+                            "Not admissible"], values))
+    tables = [table]
+    if result.population.differences:
+        observed = frozenset(result.population.observed)
+        diff_rows = [[parameter_words(d.kind, d.variables, observed=observed, article=False), d.group, num(d.value),
+                      num(d.reference_value)] for d in result.population.differences]
+        tables.append(_table("group_differences", "Population values that differ between the groups",
+                             [("Parameter", "l"), ("Group", "l"), ("Value", "r"), (f"In {labels[0]}", "r")], diff_rows,
+                             "Values given by 'in group' statements, in the model's own units; every other value is "
+                             "the same in every group (the population table below).",
+                             values=(["Parameter", "Group", "Value", f"Value in {labels[0]}"],
+                                     [[parameter_words(d.kind, d.variables, observed=observed, article=False), d.group,
+                                       d.value, d.reference_value] for d in result.population.differences])))
+    line, population = population_parts(shared)
+    tables.append(replace(population, title="Population values shared by the groups",
+                          note=f"{line} Intercepts and factor means are 0 unless a statement gives them. "
+                               f"{population.note}"))
+    cautions = [HIGH_STAKES_NOTE]
+    if any(s.role is StepRole.AFTER_MISFIT for d in result.designs for s in d.steps):
+        cautions.insert(0, AFTER_MISFIT_CAUTION)
+    title = (f"Invariance power by simulation: {_sizes(labels, result.designs[0].sizes)}"
+             if len(result.designs) == 1 else f"Invariance power by simulation at {len(result.designs)} designs")
+    return Report(ResultKind.POWER_SIMULATION, f"{title}; {result.replications} replications (seed {result.seed})",
+                  _notice([], list(_inadmissible_cautions(result))), tuple(lines), tuple(tables),
+                  cautions=tuple(cautions), warnings=_few_replications(result.replications))
+
+
+def _few_replications(replications: int) -> tuple[str, ...]:
+    """A caution when the replications are too few for shares to two decimals: the Monte Carlo standard error of a
+    share p from R replications is sqrt(p (1 - p) / R)."""
+    if replications >= 100:
+        return ()
+    return (f"Only {replications} replications: a power near .80 has a Monte Carlo standard error of about "
+            f"{math.sqrt(0.16 / replications):.2f}, and a false-alarm rate near .05 one of about "
+            f"{math.sqrt(0.0475 / replications):.2f}; give 500 or more (common practice) for shares to two decimals",)

@@ -1,0 +1,202 @@
+"""The population of a design with several groups, for planning an invariance study by simulation.
+
+Each group's items have the means and covariances that the model's matrices give
+(Sörbom 1974: mu = nu + Lambda (I - B)^-1 alpha, Sigma = Lambda (I - B)^-1 Psi (I - B)^-T Lambda' + Theta).
+The values shared by every group are those of the one-group population of the
+model file (:func:`cfa_tool.workflows.simulation.population_from_spec`: 'start'
+and 'fix' statements, standardized defaults beside them); intercepts and factor
+means are 0 unless a statement gives them; an ``in group NAME:`` statement gives
+a value for that group alone, which is how a researcher states the difference a
+study should detect (a loading of .5 instead of .7 in one language version).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from cfa_tool import options as check
+from cfa_tool.errors import OptionError
+from cfa_tool.language.checks import all_refs
+from cfa_tool.language.spec import ParameterRef, Spec
+from cfa_tool.model.implied import ModelMatrices, StructuredModel
+from cfa_tool.model.parameters import ParameterTable
+from cfa_tool.numerics.linalg import log_det_pd
+from cfa_tool.workflows.simulation import Population, population_from_spec
+
+#: parameters the one-group population cannot hold (it has no mean structure): given per group here
+MEAN_KINDS = ("intercept", "mean")
+#: the kinds a difference between groups can concern, in the order a report lists them
+DIFFERENCE_KINDS = ("loading", "intercept", "residual_variance", "residual_covariance", "factor_variance",
+                    "factor_covariance", "mean")
+
+
+@dataclass(frozen=True)
+class GroupDifference:
+    """A population value of one group that differs from the first (reference) group's."""
+
+    kind: str
+    variables: tuple[str, ...]
+    group: str
+    value: float
+    reference_value: float
+
+    def to_dict(self) -> dict:
+        return {"kind": self.kind, "variables": list(self.variables), "group": self.group, "value": self.value,
+                "reference_value": self.reference_value}
+
+
+@dataclass(frozen=True, eq=False)
+class GroupPopulation:
+    """Each group's population moments, the one-group population of the values all groups share, and the values
+    in which the groups differ."""
+
+    spec: Spec
+    labels: tuple[str, ...]
+    sigmas: tuple[np.ndarray, ...]
+    means: tuple[np.ndarray, ...]
+    shared: Population
+    differences: tuple[GroupDifference, ...]
+
+    @property
+    def observed(self) -> tuple[str, ...]:
+        return self.shared.observed
+
+    def named_groups(self) -> tuple[str, ...]:
+        """The groups the model's 'in group' statements name."""
+        return groups_named(self.spec)
+
+
+def designs_of(value: object) -> tuple[tuple[str, ...], tuple[tuple[int, ...], ...]]:
+    """The groups and their sizes: text such as 'north=300,south=200' (several designs: 'north=100/200,south=100/200',
+    the k-th size of every group together), or a dict {'north': 300, 'south': 200} (a list of sizes per group for
+    several designs).  Returns (the groups in the order given, each design's sizes in that order); designs are
+    sorted from the smallest total."""
+    name = check.Option.GROUP_SIZES
+    if isinstance(value, str):
+        parts = [part.strip() for part in value.split(",")]
+        pairs = []
+        for part in parts:
+            label, equals, sizes = part.partition("=")
+            if not equals or not label.strip() or not sizes.strip():
+                raise OptionError(f"{name}: each group is written NAME=SIZE (north=300,south=200), not '{part}'")
+            pairs.append((label.strip(), sizes.strip().split("/")))
+    elif isinstance(value, dict):
+        pairs = [(str(k), list(v) if isinstance(v, (list, tuple)) else [v]) for k, v in value.items()]
+    else:
+        raise OptionError(f"{name} must be text such as 'north=300,south=200' or a dict of group sizes, not "
+                          f"{type(value).__name__}")
+    labels = tuple(label for label, _ in pairs)
+    if len(set(labels)) < len(labels):
+        twice = next(x for x in labels if labels.count(x) > 1)
+        raise OptionError(f"{name}: group '{twice}' is given twice; give each group once")
+    if len(labels) < 2:
+        raise OptionError(f"{name}: an invariance design needs at least two groups, and {len(labels)} is given")
+    counts = {len(sizes) for _, sizes in pairs}
+    if len(counts) > 1:
+        raise OptionError(f"{name}: every group needs as many sizes as the others (one per design, separated by "
+                          f"'/'), and they have {', '.join(f'{label}: {len(s)}' for label, s in pairs)}")
+    sized = [[check.observations(int(s) if isinstance(s, str) and s.strip().isdigit() else s,
+                                 f"{name}: the size of group '{label}'") for s in sizes] for label, sizes in pairs]
+    designs = sorted(set(zip(*sized)), key=lambda d: (sum(d), d))
+    if len(designs) < counts.pop():
+        raise OptionError(f"{name}: a design is given twice; give each once")
+    return labels, tuple(designs)
+
+
+def _shared_only(spec: Spec) -> Spec:
+    """``spec`` without what needs groups or a mean structure (statements for one group, intercepts and factor
+    means, 'noninvariant'): the one-group model whose population every group shares."""
+
+    def kept(ref: ParameterRef) -> bool:
+        return ref.group is None and ref.kind not in MEAN_KINDS
+
+    def settings(items):
+        return tuple(replace(s, refs=tuple(r for r in s.refs if kept(r))) for s in items
+                     if any(kept(r) for r in s.refs))
+
+    return replace(spec, starts=settings(spec.starts), fixed=settings(spec.fixed), bounds=settings(spec.bounds),
+                   freed=tuple(r for r in spec.freed if kept(r)),
+                   equal=tuple(g for g in spec.equal if all(kept(r) for r in g)), noninvariant=())
+
+
+def groups_named(spec: Spec) -> tuple[str, ...]:
+    """The groups that the model's 'in group' statements name, in the order of the statements."""
+    return tuple(dict.fromkeys(r.group for r in all_refs(spec) if r.group is not None))
+
+
+def check_groups_named(spec: Spec, labels: tuple[str, ...]) -> None:
+    """A one-line error naming the groups that the model's 'in group' statements name and the sizes do not give (a
+    group of the sizes that no statement names takes the shared values, which the report says)."""
+    missing = [g for g in groups_named(spec) if g not in labels]
+    if missing:
+        raise OptionError(f"the model file names {'groups' if len(missing) > 1 else 'group'} "
+                          f"{', '.join(repr(g) for g in missing)} in 'in group' statements, which "
+                          f"{check.Option.GROUP_SIZES} does not give (it gives {', '.join(labels)}); give "
+                          f"{'their sizes' if len(missing) > 1 else 'its size'} or correct the name")
+
+
+def group_population(spec: Spec, labels: tuple[str, ...], configural: Spec) -> GroupPopulation:
+    """The population of each group in ``labels`` (the first the reference group), with ``configural`` the model
+    with no equality across groups (whose table lays out every group's parameters)."""
+    from cfa_tool.pipeline.continuous import model_structure
+
+    check_groups_named(spec, labels)
+    shared = population_from_spec(_shared_only(spec))
+    shared_model = StructuredModel(shared.table)
+    value_of = {(par.kind, par.variables): float(v) for par, v in
+                zip(shared.table.parameters, shared_model.entry_values(shared.theta))}
+    table, model = model_structure(configural, labels, True)
+    theta = np.full(table.n_free, np.nan)
+    for par in table.parameters:
+        if len(par.terms) == 1 and par.terms[0][1] == 1.0 and par.offset == 0.0:
+            k = par.terms[0][0]
+            if np.isnan(theta[k]):
+                given = table.start[k]
+                theta[k] = given if np.isfinite(given) else value_of.get((par.kind, par.variables), 0.0)
+    if np.isnan(theta).any():  # pragma: no cover - every free parameter of a model with groups is one entry somewhere
+        raise OptionError("a population value could not be laid out for every group")
+    factor_means = _factor_means(spec, table)
+    mats = []
+    for g, label in enumerate(labels):
+        m = model.matrices(theta, g)
+        mats.append(ModelMatrices(m.L, m.B, m.P, m.T, m.N, factor_means[g]))
+    sigmas = tuple(np.array(m.implied_covariance()) for m in mats)
+    means = tuple(np.array(m.implied_mean()) for m in mats)
+    for label, sigma in zip(labels, sigmas):
+        if log_det_pd(sigma) is None:
+            raise OptionError(f"the population values of group '{label}' imply a covariance matrix that is not "
+                              f"positive definite or not finite (check its 'in group {label}:' values)")
+    return GroupPopulation(spec, labels, sigmas, means, shared, _differences(table, model.entry_values(theta),
+                                                                             factor_means, labels))
+
+
+def _factor_means(spec: Spec, table: ParameterTable) -> list[np.ndarray]:
+    """Each group's factor means: 0, or the value of a 'start' or 'fix' statement (one for every group first, then
+    those for one group, which override them)."""
+    means = [np.zeros(len(table.latent)) for _ in table.groups]
+    settings = [(ref, s.value) for s in spec.starts + spec.fixed for ref in s.refs if ref.kind == "mean"]
+    for ref, value in sorted(settings, key=lambda rv: rv[0].group is not None):
+        for g, label in enumerate(table.groups):
+            if ref.group is None or ref.group == label:
+                means[g][table.latent.index(ref.names[0])] = value
+    return means
+
+
+def _differences(table: ParameterTable, values: np.ndarray, factor_means: list[np.ndarray],
+                 labels: tuple[str, ...]) -> tuple[GroupDifference, ...]:
+    """The values of each later group that differ from the reference group's, loadings first."""
+    reference = {(par.kind, par.variables): float(v) for par, v in zip(table.parameters, values) if par.group == 0}
+    out = []
+    for par, v in zip(table.parameters, values):
+        if par.group == 0 or par.kind not in DIFFERENCE_KINDS or par.kind == "mean":
+            continue
+        first = reference.get((par.kind, par.variables))
+        if first is not None and not np.isclose(v, first, rtol=1e-9, atol=1e-12):
+            out.append(GroupDifference(par.kind, par.variables, labels[par.group], float(v), first))
+    for g in range(1, len(labels)):
+        for f, (value, first) in enumerate(zip(factor_means[g], factor_means[0])):
+            if value != first:
+                out.append(GroupDifference("mean", (table.latent[f],), labels[g], float(value), float(first)))
+    return tuple(sorted(out, key=lambda d: DIFFERENCE_KINDS.index(d.kind)))

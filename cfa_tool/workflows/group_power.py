@@ -1,0 +1,300 @@
+"""Sample-size planning for a measurement-invariance study: Monte Carlo power of the invariance ladder.
+
+Each replication draws every group's rows from its population (:mod:`cfa_tool.workflows.group_population`),
+fits the ladder the ``invariance`` command fits (configural, metric, scalar and, when asked, strict: the
+models and difference tests of :mod:`cfa_tool.workflows.invariance`, never a copy) and records whether each
+step's difference test rejects it at alpha.  The share of replications rejecting a step is its power when
+the step's equalities do not hold in the population, and its false-alarm rate when they do (Muthén & Muthén
+2002 for power by simulation).  Beside it, the power the noncentral chi-square gives (Satorra & Saris 1985):
+the noncentrality of a step is N times the rise in the minimum discrepancy when the step's model, and the one
+before it, are fitted to the population moments themselves.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from enum import Enum
+
+import numpy as np
+
+from cfa_tool import options as check
+from cfa_tool.assessment.admissibility import counted_problems, replicated_problems
+from cfa_tool.data.moments import SampleMoments
+from cfa_tool.errors import CfaError, EstimationError, ModelError, OptionError
+from cfa_tool.language.spec import Spec
+from cfa_tool.method import DifferenceMethod
+from cfa_tool.numerics import distributions as dist
+from cfa_tool.views import Presentable
+from cfa_tool.workflows.group_population import GroupPopulation, designs_of, group_population
+from cfa_tool.workflows.invariance import LEVELS, NormalLadder, rejected_by_test, spec_of_level
+from cfa_tool.workflows.nesting import NESTING_TOLERANCE
+from cfa_tool.workflows.parallel import run_tasks
+
+#: the levels a plan may stop at (the ladder of the invariance command for continuous items)
+HIGHEST_LEVELS = tuple(level for level, _, _ in LEVELS[1:])
+DEFAULT_HIGHEST = "scalar"
+#: the group column the fits name (simulated groups come from no data file)
+SIMULATED_GROUPS = "simulated group"
+
+
+class StepRole(Enum):
+    """What the share of replications rejecting a step measures, read from the population."""
+
+    POWER = "power"  # the step's model misfits the population and the model before it does not
+    FALSE_ALARM = "false-alarm rate"  # the step's model reproduces the population exactly
+    AFTER_MISFIT = "rejection rate after a misfitting step"  # the model before it already misfits the population
+
+
+@dataclass(frozen=True)
+class StepPower:
+    """One step of the ladder at one design: how often its difference test rejected it."""
+
+    level: str
+    versus: str  # the level it is tested against
+    role: StepRole
+    df: int
+    noncentrality: float  # Satorra & Saris (1985): N times the rise of the population discrepancy
+    approximate_power: float  # the noncentral chi-square's rejection probability at alpha
+    rejected: int
+    counted: int  # replications whose every fit converged
+    inadmissible: int  # of those, replications whose fit of this level is not admissible
+    inadmissible_named: str
+
+    @property
+    def share(self) -> float:
+        return self.rejected / self.counted if self.counted else float("nan")
+
+    @property
+    def standard_error(self) -> float:
+        """The Monte Carlo standard error of the share, sqrt(p (1 - p) / R) (binomial)."""
+        p = self.share
+        return math.sqrt(p * (1 - p) / self.counted) if self.counted else float("nan")
+
+    def to_dict(self) -> dict:
+        return {"level": self.level, "tested_against": self.versus, "measures": self.role.value, "df": self.df,
+                "rejection_share": self.share, "monte_carlo_se": self.standard_error, "rejected": self.rejected,
+                "replications_counted": self.counted, "noncentrality": self.noncentrality,
+                "approximate_power": self.approximate_power, "inadmissible": self.inadmissible,
+                "inadmissible_problems": self.inadmissible_named}
+
+
+@dataclass(frozen=True)
+class DesignPower:
+    """The ladder's figures at one set of group sizes."""
+
+    sizes: tuple[int, ...]
+    replications: int
+    converged: int  # replications whose every fit converged
+    configural_inadmissible: int
+    configural_problems: str
+    steps: tuple[StepPower, ...]
+
+    @property
+    def total(self) -> int:
+        return sum(self.sizes)
+
+    def to_dict(self, labels: tuple[str, ...]) -> dict:
+        return {"group_sizes": dict(zip(labels, self.sizes)), "replications": self.replications,
+                "converged": self.converged, "configural_inadmissible": self.configural_inadmissible,
+                "configural_inadmissible_problems": self.configural_problems,
+                "steps": [s.to_dict() for s in self.steps]}
+
+
+@dataclass(frozen=True, eq=False)
+class InvariancePower(Presentable):
+    """Monte Carlo power (or false-alarm rate) of each step of the invariance ladder at one or several designs."""
+
+    population: GroupPopulation
+    designs: tuple[DesignPower, ...]
+    replications: int
+    alpha: float
+    seed: int
+    method: DifferenceMethod
+
+    @property
+    def labels(self) -> tuple[str, ...]:
+        return self.population.labels
+
+    def to_dict(self) -> dict:
+        return {"groups": list(self.labels), "reference_group": self.labels[0], "replications": self.replications,
+                "alpha": self.alpha, "seed": self.seed, "difference_test": self.method.value,
+                "difference_test_described": self.method.phrase,
+                "designs": [d.to_dict(self.labels) for d in self.designs],
+                "population_differences": [d.to_dict() for d in self.population.differences],
+                "population": self.population.shared.values(),
+                "population_defaults": list(self.population.shared.defaulted)}
+
+
+@dataclass(frozen=True)
+class _Draw:
+    """One replication's ladder: whether every fit converged, each step's rejection, each level's problems."""
+
+    converged: bool
+    rejected: tuple[bool, ...] = ()
+    problems: tuple[tuple[str, ...], ...] = ()
+    method: DifferenceMethod | None = None
+
+
+def _ladder_of(spec: Spec, highest: str) -> tuple[tuple[str, Spec], ...]:
+    """(level, model) of each level up to ``highest``, as the invariance command fits them."""
+    out = []
+    for level, classes, _ in LEVELS:
+        out.append((level, spec_of_level(spec, classes, spec.noninvariant)))
+        if level == highest:
+            break
+    return tuple(out)
+
+
+def _fit_ladder(ladder: tuple[tuple[str, Spec], ...], groups: list, alpha: float | None) -> list:
+    """Each level's (estimation, result, difference test against the level before or None), fitted and tested
+    as the invariance command fits and tests them (:class:`~cfa_tool.workflows.invariance.NormalLadder`); the
+    list stops at a level that did not converge."""
+    from cfa_tool.numerics.threads import blas_threads_for
+    from cfa_tool.pipeline.continuous import FitOptions
+
+    fitting = NormalLadder()
+    options = FitOptions(diagnostics=False, modification_indices=False)
+    out = []
+    previous, start = None, None
+    with blas_threads_for(len(groups[0][1].names)):
+        for k, (level, spec) in enumerate(ladder):
+            est = fitting.estimate(spec, groups, options, start)
+            if not est.converged:
+                out.append((est, None, None))
+                break
+            if alpha is None:  # the population's discrepancies only
+                out.append((est, None, None))
+            else:
+                result = fitting.assess(spec, groups, est, options, SIMULATED_GROUPS)
+                test = (fitting.difference(est, result, previous, level, ladder[k - 1][0])
+                        if previous is not None else None)
+                out.append((est, result, test))
+                previous = (est, result)
+            start = est.theta
+    return out
+
+
+def _replication(task) -> _Draw:
+    """Simulate every group's rows from its population and fit the ladder to them."""
+    from cfa_tool.pipeline.continuous import moments_from_rows
+    from cfa_tool.workflows.simulation import simulate_rows
+
+    ladder, labels, sigmas, means, sizes, seed, alpha, names = task
+    rng = np.random.default_rng(seed)
+    groups = [(label, moments_from_rows(simulate_rows(sigma, n, rng, mu), names, source="<replication>"))
+              for label, sigma, mu, n in zip(labels, sigmas, means, sizes)]
+    try:
+        fits = _fit_ladder(ladder, groups, alpha)
+    except CfaError:  # a sample whose model cannot be estimated: counted as not converged
+        return _Draw(False)
+    if len(fits) < len(ladder) or not fits[-1][0].converged:
+        return _Draw(False)
+    problems = tuple(replicated_problems(est.table, est.model, est.theta)[0] for est, _, _ in fits)
+    tests = [test for _, _, test in fits[1:]]
+    return _Draw(True, tuple(rejected_by_test(t, alpha) for t in tests), problems, tests[0].method)
+
+
+def _population_steps(population: GroupPopulation, ladder, sizes: tuple[int, ...]) -> list[tuple[int, float, bool]]:
+    """Per level: (degrees of freedom, noncentrality N F, whether its model reproduces the population), from the
+    level's model fitted to the population moments of groups of ``sizes`` (Satorra & Saris 1985)."""
+    groups = [(label, SampleMoments(population.observed, sigma, mu, n, n, 0, "<population>"))
+              for label, sigma, mu, n in zip(population.labels, population.sigmas, population.means, sizes)]
+    fits = _fit_ladder(ladder, groups, None)
+    if len(fits) < len(ladder) or not fits[-1][0].converged:
+        level = ladder[len(fits) - 1][0]
+        raise EstimationError(f"the {level} model could not be fitted to the population's moments (it did not "
+                              f"converge): "
+                              f"check the population values")
+    out = []
+    for est, _, _ in fits:
+        df = est.likelihood.n_statistics - est.table.n_free
+        out.append((df, sum(sizes) * max(float(est.value), 0.0), float(est.value) < NESTING_TOLERANCE))
+    if not out[0][2]:
+        raise ModelError(f"the configural model does not reproduce the population (minimum discrepancy "
+                         f"{fits[0][0].value:.3g}): a value given for one group is fixed in a way the model of that "
+                         f"group cannot take; check the 'in group' statements")
+    return out
+
+
+def approximate_power(df: int, noncentrality: float, alpha: float) -> float:
+    """The probability that a chi-square difference on ``df`` degrees of freedom exceeds its 1 - alpha quantile
+    when it follows the noncentral chi-square with this noncentrality (Satorra & Saris 1985)."""
+    if df < 1:
+        return float("nan")
+    return float(dist.ncx2_sf(dist.chi2_ppf(1 - alpha, df), df, noncentrality)) if noncentrality > 0 else alpha
+
+
+def invariance_power(model, group_sizes, replications: int = 500, seed: int = 1, alpha: float = 0.05,
+                     workers: int | None = None, scheduler: str | None = None, progress=None,
+                     highest_level: str = DEFAULT_HIGHEST) -> InvariancePower:
+    """Monte Carlo power of the invariance ladder for groups of the given sizes (``group_sizes``: text such as
+    'north=300,south=200', 'north=100/200,south=100/200' for several designs, or a dict), from the model's
+    population values ('start' and 'fix' statements; 'in group NAME:' ones for one group), up to
+    ``highest_level`` (metric, scalar or strict).  The first group is the reference group."""
+    from cfa_tool.pipeline.inputs import load_spec, without_exploratory_blocks
+
+    spec = without_exploratory_blocks(load_spec(model), "power-simulation",
+                                      "a population needs every loading, and a block's loadings are known only up to "
+                                      "its rotation")
+    replications = check.replications(replications, minimum=2)
+    seed = check.seed(seed)
+    alpha = check.probability("alpha (the level of the difference tests)", alpha)
+    if highest_level not in HIGHEST_LEVELS:
+        raise OptionError(f"{check.Option.HIGHEST_LEVEL} must be one of {', '.join(HIGHEST_LEVELS)}, not "
+                          f"{highest_level!r}")
+    labels, designs = designs_of(group_sizes)
+    if spec.invariant:
+        where = spec.equalities_location
+        raise ModelError("the invariance ladder sets the equalities of each level itself; remove 'invariance' and "
+                         "'equal across groups' statements from the model file", where, spec.source_line(where))
+    if spec.ordinal or spec.answers:
+        statement = "'ordinal'" if spec.ordinal else "'answers'"
+        raise OptionError(f"planning with groups simulates continuous answers, and the model has an {statement} "
+                          f"statement: remove it to plan for continuous items (ordinal items with groups are not "
+                          f"yet simulated)")
+    p = len(spec.observed_names)
+    for design in designs:
+        for label, n in zip(labels, design):
+            if n <= p + 1:
+                raise OptionError(f"the size {n} of group '{label}' is too small for {p} variables: each simulated "
+                                  f"group needs at least {p + 2} rows (a factor analysis far more)")
+        if sum(design) * p > check.MAX_SIMULATED_CELLS:
+            raise OptionError(f"{sum(design):,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} "
+                              f"values per simulated data set; plan with smaller groups")
+    ladder = _ladder_of(spec, highest_level)
+    population = group_population(spec, labels, ladder[0][1])
+    truth = [_population_steps(population, ladder, design) for design in designs]
+    # one design keeps the seeds one sample size has; several take one stream per design from the same seed
+    streams = ([np.random.SeedSequence(seed)] if len(designs) == 1
+               else np.random.SeedSequence(seed).spawn(len(designs)))
+    tasks = [(ladder, labels, population.sigmas, population.means, design, int(s), alpha, population.observed)
+             for design, stream in zip(designs, streams) for s in stream.generate_state(replications)]
+    draws = run_tasks(_replication, tasks, workers, scheduler, progress)
+    results = []
+    for k, design in enumerate(designs):
+        mine = draws[k * replications:(k + 1) * replications]
+        results.append(_design_power(ladder, design, replications, mine, truth[k], alpha))
+    method = next((d.method for d in draws if d.converged), DifferenceMethod.LIKELIHOOD_RATIO)
+    return InvariancePower(population, tuple(results), replications, alpha, seed, method)
+
+
+def _design_power(ladder, design: tuple[int, ...], replications: int, draws: list[_Draw], truth, alpha: float
+                  ) -> DesignPower:
+    """Each step's share of rejections among the replications whose every fit converged."""
+    ok = [d for d in draws if d.converged]
+    if not ok:
+        raise EstimationError(f"no replication converged at group sizes {', '.join(map(str, design))}; check the "
+                              f"population values and the group sizes")
+    steps = []
+    for k in range(1, len(ladder)):
+        df_before, lam_before, holds_before = truth[k - 1]
+        df, lam, holds = truth[k]
+        role = (StepRole.FALSE_ALARM if holds else StepRole.POWER if holds_before else StepRole.AFTER_MISFIT)
+        step_df, step_lam = df - df_before, max(lam - lam_before, 0.0) if not holds else 0.0
+        count, named = counted_problems(d.problems[k] for d in ok)
+        steps.append(StepPower(ladder[k][0], ladder[k - 1][0], role, step_df, step_lam,
+                               approximate_power(step_df, step_lam, alpha), sum(d.rejected[k - 1] for d in ok),
+                               len(ok), count, named))
+    count, named = counted_problems(d.problems[0] for d in ok)
+    return DesignPower(design, replications, len(ok), count, named, tuple(steps))
