@@ -23,7 +23,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.kept_rows import SHEET_COLUMNS, rows_listed
+from cfa_tool.data.kept_rows import SHEET_COLUMNS, row_naming, rows_listed
 from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
@@ -800,7 +800,7 @@ def drop_blank_rows(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, tupl
     numbers = row_numbers(frame)[blank]
     one = len(numbers) == 1
     note = (f"{where}: {len(numbers)} {'row' if one else 'rows'} with no value in any column "
-            f"{'was' if one else 'were'} skipped ({rows_listed(numbers)})")
+            f"{'was' if one else 'were'} skipped ({rows_listed(numbers, naming=row_naming(frame))})")
     return frame[~blank], (note,)
 
 

@@ -13,6 +13,7 @@ import pandas as pd
 
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.groups import split_moments
+from cfa_tool.data.kept_rows import RowNaming, named_by_index_label, row_naming
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.matching import answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges
@@ -113,18 +114,19 @@ def of_summary_statistics(result, moments, notes) -> object:
 
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               text_columns: tuple[str, ...] = (), items=None, listed=None, filters=(),
-              names_row: int | None = None) -> LoadedData:
+              names_row: int | None = None, names_option: Option = Option.NAMES_ROW) -> LoadedData:
     """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to;
-    ``filters``: the row filters applied next, which the notes do not suggest again)."""
+    ``filters``: the row filters applied next, which the notes do not suggest again; ``names_option``: the option
+    that gave ``names_row``)."""
     missing_codes = missing_codes_option(missing_codes)
     if isinstance(data, pd.DataFrame):
         if sheet is not None:
             raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
                               f"frame; leave the sheet out")
         if names_row is not None:
-            raise OptionError(f"a row of column names ({Option.NAMES_ROW}) is read from a file, and the "
+            raise OptionError(f"a row of column names ({names_option}) is read from a file, and the "
                               f"data are a data frame, whose columns have their names; leave it out")
-        frame = blank_text_as_missing(data)  # '' and '  ' are no answer, as an empty cell of a file is
+        frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
         frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
         frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items, filters)  # in the items only
         return LoadedData(frame, "<data frame>", notes=blank + tuple(notes))
@@ -400,10 +402,13 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
     no answer (``loaded.non_answers``), which the methods paragraph names; and the values of its items that look like
     no answers but were analysed as answers (``loaded.odd_values``), and the row filters that chose its rows
-    (:func:`with_row_filters`), which it names too; and how a text file was read (``loaded.reading``)."""
+    (:func:`with_row_filters`), which it names too; how a text file was read (``loaded.reading``) and how its rows are
+    named (a data frame's by their index labels, data.kept_rows.RowNaming)."""
     result = with_row_filters(result, loaded)
     if loaded.reading is not None:
         result = replace(result, data=replace(result.data, reading=loaded.reading))
+    if row_naming(loaded.frame) is not RowNaming.FILE_ROW:
+        result = replace(result, data=replace(result.data, row_naming=row_naming(loaded.frame)))
     codes = missing_codes_option(missing_codes)
     items = set(result.observed)
     marked = tuple(f for f in loaded.non_answers if f.column in items)
@@ -566,7 +571,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
         return ()
 
     def listed(which: list[int], skipped: bool = False) -> str:
-        """The rows by row number (and id); ``skipped``: say of a row that left reverse-worded items out how
+        """The rows by row number or index label (and id); ``skipped``: say of a row that left reverse-worded items out how
         many of them it answered."""
         def one_row(k: int) -> str:
             r = found.rows[k]
@@ -576,7 +581,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
             return f"{r} ({'; '.join(said)})" if said else str(r)
         shown = [one_row(k) for k in which[:SAME_ANSWER_ROWS_SHOWN]]
         more = len(which) - len(shown)
-        return f"row{'' if len(which) == 1 else 's'} {', '.join(shown)}" + (f" and {more} more" if more else "")
+        return f"{row_naming(frame).of(len(which))} {', '.join(shown)}" + (f" and {more} more" if more else "")
 
     def gave(which: list[int]) -> str:
         answers = sorted({found.answers[k] for k in which})
@@ -1297,5 +1302,6 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        group_rows=tuple(m.n_obs for _, m in groups) if labels else (),
                        group_parameters=tuple(group_parameter_counts(table)) if labels and not ordinal_items else (),
                        zero_weight=len(loaded.frame) - len(frame),
-                       empty_rows=tuple(int(r) for r in row_numbers(answered)[unanswered]))
+                       empty_rows=tuple(int(r) for r in row_numbers(answered)[unanswered]),
+                       row_naming=row_naming(frame))
 

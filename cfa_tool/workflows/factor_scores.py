@@ -17,6 +17,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.kept_rows import RowNaming, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
@@ -511,7 +512,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     errors = {meth: np.full((n, m), np.nan) for meth in chosen}
     position = pd.Series(np.arange(n), index=read_frame.index)
     if ordinal:
-        _check_categories(models[0], rows, row_numbers(frame), source)
+        _check_categories(models[0], rows, row_numbers(frame), source, row_naming(frame))
     counts: dict = {}
     for model_g, label in zip(models, labels):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(frame))
@@ -573,10 +574,11 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                        unscored, with_errors, tuple(notes), source, tuple(warnings))
 
 
-def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str) -> None:
+def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str,
+                      naming: RowNaming = RowNaming.FILE_ROW) -> None:
     """Every answer to an ordinal item must be one of the categories the earlier fit estimated thresholds for: an
     error naming the item, the row and the value otherwise (``data_rows``: each row's number in the file,
-    data.moments.row_numbers)."""
+    data.moments.row_numbers, named as ``naming`` says)."""
     for j, cats in enumerate(model.categories):
         if not cats:
             continue
@@ -585,7 +587,7 @@ def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: st
         if unknown.any():
             k = int(np.flatnonzero(unknown)[0])
             raise DataError(f"{source}: ordinal item '{printable(model.base.items[j])}' has the answer {column[k]:g} in "
-                            f"row {int(data_rows[k])}, which is not one of the categories the earlier fit "
+                            f"{naming.one_row(int(data_rows[k]))}, which is not one of the categories the earlier fit "
                             f"estimated thresholds for ({', '.join(f'{v:g}' for v in cats)}); recode it or leave it out")
 
 
