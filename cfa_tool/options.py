@@ -162,6 +162,7 @@ class Option(enum.Enum):
     REFERENCE_GROUP = ("--reference-group", "reference_group")
     ID_COLUMN = ("--id", "id_column")
     NAMES_ROW = ("--names-row", "names_row")
+    VALIDATION_NAMES_ROW = ("--validation-names-row", "validation_names_row")  # replicate's validation file
     ROBUST = ("--robust", "test", "robust")
     INCOMPLETE_ROWS = ("--incomplete-rows", "missing")
     STANDARD_ERRORS_FROM = ("--standard-errors-from", "information")

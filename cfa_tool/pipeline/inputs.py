@@ -135,7 +135,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items,
-                         listed=listed, filters=filters, names_row=names_row)
+                         listed=listed, filters=filters, names_row=names_row, names_option=names_option)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -158,14 +158,15 @@ def keep_option(keep) -> list[str]:
 
 
 def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: tuple[str, ...] = (),
-                  items=None, filters=(), names_row: int | None = None) -> LoadedData:
+                  items=None, filters=(), names_row: int | None = None,
+                  names_option: Option = Option.NAMES_ROW) -> LoadedData:
     """The data read for the model ``spec``, as every command reads them: a missing-value code on a declared scale
     refused, no-answer words and labels read as missing in ``items`` only (None: the model's items), and the words
     its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next."""
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
     listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
     return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed,
-                     filters, names_row)
+                     filters, names_row, names_option)
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
@@ -191,7 +192,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         frame, filter_notes, filters = apply_filters(frame, filters, loaded.source, loaded.value_labels)
         notes += filter_notes
         cautions = kept_cautions(cautions, frame)
-    check_columns(spec, columns, loaded.source, loaded.sheet_hint())
+    check_columns(spec, columns, loaded.source, loaded.column_hint())
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
                                             missing_codes=missing_codes_option(missing_codes))
     notes += coding_notes

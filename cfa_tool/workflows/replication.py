@@ -287,7 +287,7 @@ SHARED_ROWS = 0.2
 
 #: the keywords of :func:`replicate` and :func:`split_half` besides the fit options (an unknown keyword's near names)
 REPLICATE_KEYWORDS = ("model", "calibration", "validation", "ordinal", "ordinal_estimator", "missing", "sheet",
-                      "missing_codes", "names_row")
+                      "missing_codes", "names_row", "validation_names_row")
 SPLIT_HALF_KEYWORDS = ("model", "data", "seed", "ordinal", "ordinal_estimator", "missing", "sheet", "missing_codes",
                        "names_row")
 
@@ -295,11 +295,13 @@ SPLIT_HALF_KEYWORDS = ("model", "data", "seed", "ordinal", "ordinal_estimator", 
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
               sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
-              **options) -> Replication:
+              validation_names_row: int | None = None, **options) -> Replication:
     """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
     their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too);
     ``missing_codes`` apply to both files, as for ``fit``; ``sheet`` to those of the two that are Excel workbooks
-    (a calibration workbook with a CSV validation file), an error when neither is one."""
+    (a calibration workbook with a CSV validation file), an error when neither is one.  The row of column names is
+    each file's own: ``names_row`` that of the calibration file, ``validation_names_row`` that of the validation
+    file (a workbook with question texts above the item codes beside a plain CSV file)."""
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
@@ -310,9 +312,10 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                           f"new data ({_one_file_instead()})")
     sheets = sheet_of_each((calibration, validation), sheet)
     read = [load_data_for(spec, calibration, sheets[0], missing_codes, names_row=names_row),
-            load_data_for(spec, validation, sheets[1], missing_codes, names_row=names_row)]
+            load_data_for(spec, validation, sheets[1], missing_codes, names_row=validation_names_row,
+                          names_option=Option.VALIDATION_NAMES_ROW)]
     for loaded in read:
-        check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
+        check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source, loaded.column_hint())
     read, notes = zip(*(_words_coded(spec, loaded, missing_codes) for loaded in read))
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
@@ -364,7 +367,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                                                      options if missing is None else {**options, "missing": missing},
                                                      SPLIT_HALF_KEYWORDS)
     loaded = load_data_for(spec, data, sheet, missing_codes, names_row=names_row)
-    check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
+    check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source, loaded.column_hint())
     loaded, notes = _words_coded(spec, loaded, missing_codes)
     frame, source = loaded.frame, loaded.source
     screen = screened(frame, spec.observed_names, source, loaded.non_answers, loaded.cautions)
