@@ -29,7 +29,7 @@ from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, s
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
 from cfa_tool.errors import DataError, printable
 from cfa_tool.options import Option
-from cfa_tool.input_files import check_input_path, input_bytes, normalise_line_ends, text_lines, utf16_text
+from cfa_tool.input_files import check_input_path, input_bytes, line_count, utf16_text
 from cfa_tool.numbers import number
 
 if TYPE_CHECKING:
@@ -364,21 +364,20 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
                                          _filter_kept(ws, header, skipped)))
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
-    found = dict.fromkeys(MISSING_MARKERS, 0)
-    marked: dict[int, list] = {}
+    marked: dict[int, dict[str, int]] = {}  # column position -> {marker: cells}, counted once
     for r in body:
         for k, v in enumerate(r):
-            if isinstance(v, str) and v.strip() in found:
-                found[v.strip()] += 1
-                marked.setdefault(k, []).append(v)
+            if isinstance(v, str) and v.strip() in _MARKER_SET:
+                counted = marked.setdefault(k, {})
+                counted[v.strip()] = counted.get(v.strip(), 0) + 1
                 r[k] = None
-    _say_markers(found, where, notes)
+    _say_markers(_marker_totals(marked.values()), where, notes)
     if any(v is None for r in body for v in r):
         _check_uncomputed_formulas(path, ws.title, first)
     frame = pd.DataFrame(body, columns=header, index=file_rows_index(kept))
     frame.attrs[SHEET_COLUMNS] = {name: get_column_letter(skipped + k + 1) for k, name in enumerate(header) if name}
     if marked:
-        _keep_markers(frame, {header[k]: cells for k, cells in marked.items()})
+        frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
     _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option)
     if row_names:
         frame = _split_row_names(frame, names_out)
@@ -716,7 +715,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     if first is None:
         raise DataError(f"data file '{path}' is empty")
     if names_row is not None:
-        lines_in_file = len(text_lines(normalise_line_ends(text)))
+        lines_in_file = line_count(text)
         start = _names_row_start(names_row, lines_in_file, first[0] - 1, str(path), "line", names_option) + 1
         first = next(((line, fields) for line, fields in _records(text, delimiter) if line >= start), None)
         if first is None or first[0] != start:
@@ -736,15 +735,15 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
             raise DataError(f"{path}: line {header_line}: column {position} of the header{named_by} has no name")
     _check_duplicates(header, str(path), named_by)
     lines: list[int] = []  # the line each row starts on: messages name rows by it
-    body_start = _offset_of_line(text, header_line)
-    widest = _check_field_counts(text[body_start:], delimiter, len(header), len(header) + trailing, path, header_line,
+    body = text[_offset_of_line(text, header_line):]  # from the header line on, cut out once
+    widest = _check_field_counts(body, delimiter, len(header), len(header) + trailing, path, header_line,
                                  lines, names_option)
-    decimal = _decimal_mark(text[body_start:], delimiter)
+    decimal = _decimal_mark(body, delimiter)
     if reading is not None:
         reading.append(TextReading(encoding, delimiter, decimal, header_line))
     try:
         frame = pd.read_csv(
-            io.StringIO(text[body_start:]),
+            io.StringIO(body),
             sep=delimiter,
             header=0,
             names=list(range(widest)),
@@ -767,7 +766,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     if len(lines) == len(frame):  # (always: the records counted as the table parser reads them)
         frame.index = file_rows_index(lines)
     frame = blank_text_as_missing(frame, text_columns, MISSING_MARKERS, decimal == ",")  # 'NA ' is 'NA'
-    raw = _RawCells(text[body_start:], delimiter, widest, len(header), frame.index)
+    raw = _RawCells(body, delimiter, widest, len(header), frame.index)
     _check_header_rows(frame, str(path), decimal == ",", text_columns, items, header_line, names_option)
     if decimal == ",":
         _check_dotted_thousands(frame, raw, header, path, notes)
@@ -945,6 +944,7 @@ _THOUSANDS_DOT = re.compile(r"\d\.\d{3}(?!\d)")
 
 #: cells read as no answer beside empty ones, as statistics packages and spreadsheets write them
 MISSING_MARKERS = ("NA", "N/A", "n/a", "#N/A", "NaN", "nan", ".")
+_MARKER_SET = frozenset(MISSING_MARKERS)
 _MARKER = re.compile(r"(?:^|[,;\t|])\s*\"?(?:" + "|".join(map(re.escape, MISSING_MARKERS)) + r")\"?\s*(?=[,;\t|]|$)",
                      re.MULTILINE)
 
@@ -956,10 +956,16 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
     column's markers kept in ``frame.attrs`` (:data:`MARKED`)."""
     if notes is None or not _MARKER.search(raw.body):
         return
-    cells = raw.frame().apply(lambda column: column.str.strip())
-    _say_markers({m: int((cells == m).to_numpy().sum()) for m in MISSING_MARKERS}, path, notes)
-    if frame is not None:
-        _keep_markers(frame, {name: cells.iloc[:, k].tolist() for k, name in enumerate(header)})
+    cells = raw.frame()
+    marked = {}  # column -> {marker: cells}, counted once for the note and the column's record
+    for k, name in enumerate(header):
+        stripped = cells.iloc[:, k].str.strip()
+        counted = stripped[stripped.isin(MISSING_MARKERS)].value_counts(sort=False)
+        if len(counted):
+            marked[name] = {str(m): int(n) for m, n in counted.items()}
+    _say_markers(_marker_totals(marked.values()), path, notes)
+    if frame is not None and marked:
+        frame.attrs[MARKED] = marked
 
 
 #: the key of DataFrame.attrs that keeps, for each column, the markers of no answer its cells were written as and
@@ -967,18 +973,11 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
 MARKED = "marked_no_answer"
 
 
-def _keep_markers(frame: pd.DataFrame, written: dict) -> None:
-    """Keep in ``frame.attrs[MARKED]`` each column's cells written as a marker of no answer (``written``: each
-    column's cells as written)."""
-    from collections import Counter
-
-    kept = {}
-    for name, cells in written.items():
-        counted = Counter(c.strip() for c in cells if isinstance(c, str) and c.strip() in MISSING_MARKERS)
-        if counted:
-            kept[name] = dict(counted)
-    if kept:
-        frame.attrs[MARKED] = kept
+def _marker_totals(marked) -> dict[str, int]:
+    """How many cells of each marker of no answer, in the order of MISSING_MARKERS, from each column's counts
+    (``marked``: {marker: cells} per column)."""
+    marked = list(marked)
+    return {m: sum(counted.get(m, 0) for counted in marked) for m in MISSING_MARKERS}
 
 
 def _say_markers(found: dict[str, int], where, notes: list[str] | None) -> None:
