@@ -370,8 +370,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     loaded = analysed_odd_values(loaded, spec, group)
     by_row = ids_by_row_number(ids, frame)
     with odd_values_named(loaded):
-        result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
-                                       ordinal_estimator, design, ids), by_row)
+        result = named_cases(_fit_read_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
+                                            ordinal_estimator, design, ids), by_row)
     reference_group_applies(result, reference_group)
     result = with_missing_reading(with_odd_values(result, loaded, group, spec, design, by_row), loaded, missing_codes)
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
@@ -787,12 +787,20 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
              design: DesignColumns | None = None, ids: pd.Series | None = None) -> FitResult:
     """The fit of rows of raw data (after reading, filters and model checks), its data summary naming the
     row filters and the rows the file held before them (``ids``: each row's id, data.row_ids, which name the rows
-    left out)."""
+    left out).  fit itself takes :func:`_fit_read_rows`: :func:`with_missing_reading` names the filters with the
+    rest of the reading."""
+    return with_row_filters(_fit_read_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
+                                           ordinal_estimator, design, ids), loaded)
+
+
+def _fit_read_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
+                   design: DesignColumns | None = None, ids: pd.Series | None = None) -> FitResult:
+    """:func:`_fit_rows` without the row filters in its data summary."""
     result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design,
                             ids)
     if group is not None or design is not None:
         result = with_rows_read(result, loaded)
-    return with_row_filters(result, loaded)
+    return result
 
 
 def with_row_filters(result, loaded: LoadedData):
