@@ -420,9 +420,9 @@ class HiddenRows:
                 f"file holds them.")
 
     def advice(self) -> str:
-        keep = f" (here --keep \"{printable(self.keep)}\")" if self.keep else ""
-        return (f"If the hidden rows are not to be analysed, leave them out with a --keep filter on the column the "
-                f"workbook's filter uses{keep}, or delete them from a copy of the file.")
+        keep = f" (here {Option.KEEP.given(printable(self.keep))})" if self.keep else ""
+        return (f"If the hidden rows are not to be analysed, leave them out with a row filter ({Option.KEEP}) on the "
+                f"column the workbook's filter uses{keep}, or delete them from a copy of the file.")
 
     def to_dict(self) -> dict:
         return {"sheet": self.sheet, "rows": list(self.rows), "of": self.of, "filtered": self.filtered,
