@@ -213,6 +213,15 @@ def _numbers(text: str) -> bool:
     return all(number(part) is not None for part in text.split(","))
 
 
+def own_keywords(function) -> tuple[str, ...]:
+    """The keywords of a public function besides the fit options it passes on (``**options``), in the order of its
+    signature: read once where the function is defined (FIT_KEYWORDS = own_keywords(fit)), never per call, for
+    pipeline.inputs.make_options to name an unknown keyword's near ones."""
+    import inspect
+
+    return tuple(name for name, p in inspect.signature(function).parameters.items() if p.kind is not p.VAR_KEYWORD)
+
+
 def option_in_both(flag: str, keyword: str) -> str:
     """An option as advice names it, for a reader of the command line and of Python alike (a report reads the
     same whichever made it): "--ordinal all; from Python, ordinal='all'"."""

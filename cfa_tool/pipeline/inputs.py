@@ -28,7 +28,7 @@ from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_desi
                                          refuse_shared_clusters)
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
-from cfa_tool.options import Option, option_in_both
+from cfa_tool.options import Option, option_in_both, own_keywords
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, printable
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
@@ -275,12 +275,6 @@ def _no_group_notes(no_group: int, group: str) -> list[str]:
             f"{'was' if no_group == 1 else 'were'} left out"]
 
 
-#: the keywords of :func:`fit` besides the fit options (an unknown keyword's near names: :func:`make_options`)
-FIT_KEYWORDS = ("model", "data", "group", "reference_group", "sheet", "names_row", "missing_codes", "keep",
-                "covariance", "n_obs", "means", "variables", "matrix", "sds", "divisor", "ordinal",
-                "ordinal_estimator", "id_column", "weights", "cluster", "strata", "weight_kind")
-
-
 def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None, *, group: str | None = None,
         reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
         missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
@@ -376,6 +370,11 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     result = with_missing_reading(with_odd_values(result, loaded, group, spec, design, by_row), loaded, missing_codes)
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
+
+
+#: the keywords of :func:`fit` besides the fit options it passes on (an unknown keyword's near names,
+#: make_options), read from its signature once
+FIT_KEYWORDS = own_keywords(fit)
 
 
 def reference_group_applies(results, reference_group: str | None) -> None:

@@ -23,7 +23,7 @@ from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
 from cfa_tool.errors import DataError, EstimationError, OptionError, printable
 from cfa_tool.numerics.plain import csv_cell
-from cfa_tool.options import Option, group_column
+from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
@@ -255,12 +255,6 @@ class ScoreResult(Presentable):
         return self.summary()
 
 
-#: the keywords of :func:`scores` besides the fit options (an unknown keyword's near names)
-SCORES_KEYWORDS = ("model", "data", "methods", "standard_errors", "id_column", "group", "reference_group", "sheet",
-                   "names_row", "missing_codes", "keep", "ordinal", "ordinal_estimator", "weights", "cluster",
-                   "strata", "weight_kind")
-
-
 def scores(model, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
            group: str | None = None, reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
            missing_codes=(), keep=(), ordinal=None, ordinal_estimator: str | None = None, weights: str | None = None,
@@ -392,6 +386,11 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
                        bool(standard_errors or ordinal_items), tuple(extra),
                        warnings=tuple(centred_in_each_group(result.estimates) + own))
+
+
+#: the keywords of :func:`scores` besides the fit options it passes on (an unknown keyword's near names,
+#: make_options), read from its signature once
+SCORES_KEYWORDS = own_keywords(scores)
 
 
 def models_of_fit(result: FitResult) -> tuple[list, list]:

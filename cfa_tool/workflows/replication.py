@@ -45,7 +45,7 @@ from cfa_tool.data.readers import sheet_of_each
 from cfa_tool.data.kept_rows import row_naming
 from cfa_tool.data.moments import SampleMoments, row_numbers, sample_moments
 from cfa_tool import options as check
-from cfa_tool.options import Option
+from cfa_tool.options import Option, own_keywords
 from cfa_tool.errors import DataError, EstimationError, OptionError, estimation_of, printable
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.pipeline.continuous import FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, fit_moments, listwise_problem
@@ -285,13 +285,6 @@ def _one_file_instead() -> str:
 SHARED_ROWS = 0.2
 
 
-#: the keywords of :func:`replicate` and :func:`split_half` besides the fit options (an unknown keyword's near names)
-REPLICATE_KEYWORDS = ("model", "calibration", "validation", "ordinal", "ordinal_estimator", "missing", "sheet",
-                      "missing_codes", "names_row", "validation_names_row")
-SPLIT_HALF_KEYWORDS = ("model", "data", "seed", "ordinal", "ordinal_estimator", "missing", "sheet", "missing_codes",
-                       "names_row")
-
-
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
               sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
@@ -334,6 +327,11 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     return replace(result, data_problems=tuple(dict.fromkeys(p for s in screens for p in data_problems(s, spec))) + left_out,
                    notes=tuple(dict.fromkeys(n for file_notes in notes for n in file_notes)),
                    answer_coding=coding_record(spec))
+
+
+#: the keywords of :func:`replicate` besides the fit options it passes on (an unknown keyword's near names,
+#: make_options), read from its signature once
+REPLICATE_KEYWORDS = own_keywords(replicate)
 
 
 def _left_out(dropped: int, read: int, source: str, missing, ordinal_items) -> tuple:
@@ -381,6 +379,11 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                                                        MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
     return tuple(replace(rep, data_problems=problems, split=rows, notes=notes, answer_coding=coding_record(spec))
                  for rep in pair)
+
+
+#: the keywords of :func:`split_half` besides the fit options it passes on (an unknown keyword's near names,
+#: make_options), read from its signature once
+SPLIT_HALF_KEYWORDS = own_keywords(split_half)
 
 
 @dataclass(frozen=True)
