@@ -60,7 +60,8 @@ class SplitHalves:
     """The two random halves of an explore-then-confirm run."""
 
     seed: int
-    exploration_rows: tuple[int, ...]  # the rows' numbers as the file numbers them (data.moments.row_numbers)
+    #: the rows' numbers as the file numbers them, a data frame's index labels (data.moments.row_numbers)
+    exploration_rows: tuple[int, ...]
     confirmation_rows: tuple[int, ...]
     confirmation: FitResult | None  # the draft model fitted on the confirmation half (None: no usable draft)
     note: str | None = None  # why there is no confirmation fit

@@ -394,7 +394,8 @@ class SplitRows:
     split: int
     in_file: int
     complete_only: bool
-    #: the row numbers (as the file numbers them, data.moments.row_numbers) of half A and of half B
+    #: the row numbers (as the file numbers them, a data frame's index labels: data.moments.row_numbers) of half A and
+    #: of half B
     half_a: tuple[int, ...] = field(default=(), repr=False)
     half_b: tuple[int, ...] = field(default=(), repr=False)
 
