@@ -351,7 +351,7 @@ def row_numbers(frame: pd.DataFrame | pd.Series) -> np.ndarray:
     (data.kept_rows.named_by_index_label), else 1-based row numbers: the index + 1 when it counts rows (a file's rows,
     whose reader set it by :func:`file_rows_index`, also after row filters), else positions."""
     index = frame.index
-    if frame.attrs.get(ROW_NAMING) is RowNaming.INDEX_LABEL and pd.api.types.is_integer_dtype(index):
+    if frame.attrs.get(ROW_NAMING) is RowNaming.INDEX_LABEL and index.dtype.kind in "iu":  # labels of whole numbers
         return np.asarray(index, dtype=np.int64)
     if isinstance(index, pd.RangeIndex) and index.start >= 0 and index.step == 1:  # the common case, without type checks
         return np.arange(index.start + 1, index.stop + 1)
