@@ -108,8 +108,9 @@ class DataError(UserInputError):
 
 
 class RowDataError(DataError):
-    """A :class:`DataError` about one data row (``row``: its number in the file, data.moments.row_numbers), so
-    that a caller that knows more of that row (a row of means or totals found on reading) can say so first."""
+    """A :class:`DataError` about one data row (``row``: its number in the file or a data frame's index label,
+    data.moments.row_numbers), so that a caller that knows more of that row (a row of means or totals found on
+    reading) can say so first."""
 
     def __init__(self, message: str, row: int):
         self.row = row

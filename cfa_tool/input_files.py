@@ -152,6 +152,13 @@ def normalise_line_ends(text: str) -> str:
     return text.replace("\r\n", "\n").replace("\r", "\n") if "\r" in text else text
 
 
+def line_count(text: str) -> int:
+    """How many lines ``text`` has, as :func:`text_lines` of :func:`normalise_line_ends` counts them (a line ends at
+    LF, CR LF or CR; a last line without its end counts), without copying or splitting the text."""
+    ends = text.count("\n") + text.count("\r") - text.count("\r\n")
+    return ends + (1 if text and not text.endswith(("\n", "\r")) else 0)
+
+
 def text_lines(text: str) -> list[str]:
     """Lines split at LF only, as parsers and editors count them (``str.splitlines`` also splits at
     form feeds, U+0085, U+2028 and other separators, which would put messages on the wrong line)."""

@@ -162,6 +162,7 @@ class Option(enum.Enum):
     REFERENCE_GROUP = ("--reference-group", "reference_group")
     ID_COLUMN = ("--id", "id_column")
     NAMES_ROW = ("--names-row", "names_row")
+    VALIDATION_NAMES_ROW = ("--validation-names-row", "validation_names_row")  # replicate's validation file
     ROBUST = ("--robust", "test", "robust")
     INCOMPLETE_ROWS = ("--incomplete-rows", "missing")
     STANDARD_ERRORS_FROM = ("--standard-errors-from", "information")
@@ -213,6 +214,15 @@ def _numbers(text: str) -> bool:
     from cfa_tool.numbers import number
 
     return all(number(part) is not None for part in text.split(","))
+
+
+def own_keywords(function) -> tuple[str, ...]:
+    """The keywords of a public function besides the fit options it passes on (``**options``), in the order of its
+    signature: read once where the function is defined (FIT_KEYWORDS = own_keywords(fit)), never per call, for
+    pipeline.inputs.make_options to name an unknown keyword's near ones."""
+    import inspect
+
+    return tuple(name for name, p in inspect.signature(function).parameters.items() if p.kind is not p.VAR_KEYWORD)
 
 
 def option_in_both(flag: str, keyword: str) -> str:

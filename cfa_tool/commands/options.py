@@ -33,7 +33,7 @@ def add_model_and_data(p: argparse.ArgumentParser, data_help: str = "data file")
 def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
     """--sheet, --missing-codes and (``filters``) --keep."""
     p.add_argument("--sheet", metavar="NAME", help="sheet of an Excel workbook (default: the first)")
-    p.add_argument("--names-row", metavar="N", type=_row_number, default=None,
+    p.add_argument("--names-row", metavar="N", type=row_number, default=None,
                    help="the row of a sheet (or line of a text file) that holds the column names, when rows above it "
                         "hold other headings such as question texts; those rows are not read (default: the first row "
                         "with values)")
@@ -44,7 +44,7 @@ def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
                        help="keep only rows that meet COLUMN OPERATOR VALUE, e.g. 'district = north' (repeatable)")
 
 
-def _row_number(text: str) -> int:
+def row_number(text: str) -> int:
     try:
         value = int(text)
     except ValueError:

@@ -18,6 +18,9 @@ def add_parser(sub) -> None:
     rep.add_argument("--seed", type=int, default=None, help="seed of the random split of --data (default 1)")
     add_halves_file(rep, "--data")
     O.add_data_options(rep, filters=False)
+    rep.add_argument("--validation-names-row", metavar="N", type=O.row_number, default=None,
+                     help="the row (or line) of the --validation file that holds its column names; --names-row gives "
+                          "that of the --calibration file (or of --data), so each file is read as it is laid out")
     O.add_ordinal_options(rep)
     O.add_incomplete_rows_option(rep, O.REFITS_AS_THE_FIT)
     O.refuse_design_options(rep, "replicate's test of one solution and cross-validation index compare the discrepancies of "
@@ -35,6 +38,9 @@ def run(args: argparse.Namespace) -> int:
     model = Path(args.model)
     if args.data and (args.calibration or args.validation):
         raise OptionError("give either --data (split-half) or --calibration and --validation, not both")
+    if args.validation_names_row is not None and not args.validation:
+        raise OptionError("--validation-names-row names the row of column names of the --validation file, and no "
+                          "--validation file is given; the row of --data is given with --names-row")
     ordinal = {"ordinal": O.ordinal_arg(args.ordinal), "ordinal_estimator": args.ordinal_estimator,
                "missing": args.missing, "sheet": args.sheet, "missing_codes": args.missing_codes,
                "names_row": args.names_row}
@@ -47,7 +53,8 @@ def run(args: argparse.Namespace) -> int:
         raise OptionError("--seed sets the random split of --data into halves; --calibration and --validation are "
                           "split already: leave --seed out")
     elif args.calibration and args.validation:
-        pair = (replicate(model, args.calibration, args.validation, **ordinal),)
+        pair = (replicate(model, args.calibration, args.validation, validation_names_row=args.validation_names_row,
+                          **ordinal),)
     else:
         raise OptionError("give --calibration and --validation files, or --data FILE to split one data set in two halves")
     split = pair[0].split

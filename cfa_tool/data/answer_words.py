@@ -13,6 +13,7 @@ import pandas as pd
 
 from dataclasses import replace
 
+from cfa_tool.data.kept_rows import row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.missing_codes import missing_codes_note
 from cfa_tool.data.non_answers import says_no_answer
@@ -86,7 +87,7 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
             code, wrong = _code_of(value, words, numbers)
             if wrong == "number" and not any(isinstance(v, str) and answer_key(v) in words for v in distinct):
                 raise DataError(f"{source}: column '{printable(item)}' holds numbers, not the words of {coding.origin} "
-                                f"('{_shown(value)}' in row {_first_row(column, value, row_numbers(column))}); "
+                                f"('{_shown(value)}' in {_first_row(column, value, row_numbers(column))}); "
                                 + ("name the items whose answers are words with 'for ITEMS' at the end of the statement"
                                    if coding.carried_from is None and not coding.items else
                                    "take the column out of the statement's items" if coding.carried_from is None else
@@ -122,14 +123,14 @@ def _check_codes_of_answers(coding: AnswerCoding, no_answer: set[float]) -> None
                           f"{Option.MISSING_CODES}")
 
 
-def _first_row(column: pd.Series, value: object, rows: np.ndarray) -> int:
-    """The row number of the first cell holding ``value``."""
-    return int(rows[int(np.flatnonzero(column.to_numpy(dtype=object) == value)[0])])
+def _first_row(column: pd.Series, value: object, rows: np.ndarray) -> str:
+    """The first row holding ``value``, named as ``column``'s rows are (data.kept_rows.RowNaming): 'row 12'."""
+    return row_naming(column).one_row(int(rows[int(np.flatnonzero(column.to_numpy(dtype=object) == value)[0])]))
 
 
 def _cell_error(source: str, item: str, column: pd.Series, value: object, wrong: str, coding: AnswerCoding,
                 rows: np.ndarray) -> DataError:
-    where = f"{source}: column '{printable(item)}', row {_first_row(column, value, rows)}"
+    where = f"{source}: column '{printable(item)}', {_first_row(column, value, rows)}"
     line = coding.origin
     if wrong == "word":
         marks = character_names(str(value), "".join(a.shown for a in coding.answers))  # a look-alike letter shown

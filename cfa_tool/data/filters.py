@@ -16,10 +16,11 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.kept_rows import KEPT_BY
+from cfa_tool.data.kept_rows import KEPT_BY, row_naming
 from cfa_tool.data.labels import label_text
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.options import Option
 from cfa_tool.language.names import written_name
 from cfa_tool.numbers import number
 from cfa_tool.suggest import close_names
@@ -131,9 +132,10 @@ def _first_text(column: pd.Series, numeric: pd.Series) -> str:
     more = int(text.sum()) - 1
     cell = str(column.iloc[k])
     # words that say no answer are read as missing in item columns only (data.readers): a filter can leave them out
-    first = (f", or leave its rows out first with --keep \"{printable(str(column.name))} != '{printable(cell.strip())}'\""
+    leave_out = f"{printable(str(column.name))} != '{printable(cell.strip())}'"
+    first = (f", or leave its rows out first with {Option.KEEP.given(leave_out)}"
              if says_no_answer(cell) and "'" not in cell else "")
-    return (f" ('{printable(cell)}' in row {row_numbers(column)[k]}"
+    return (f" ('{printable(cell)}' in {row_naming(column).one_row(row_numbers(column)[k])}"
             + (f", and {more} more such cell{'s' if more != 1 else ''}" if more else "")
             + f", among numbers: correct it or leave it empty in a copy of the file to compare numbers{first})")
 

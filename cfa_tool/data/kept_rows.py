@@ -3,6 +3,8 @@ use for them."""
 
 from __future__ import annotations
 
+import enum
+
 import pandas as pd
 
 from cfa_tool.errors import printable
@@ -16,23 +18,67 @@ KEPT_BY = "kept_by_row_filters"
 SHEET_COLUMNS = "sheet_columns"
 
 
-def rows_listed(numbers, shown: int = 5, ids=()) -> str:
+#: the key of DataFrame.attrs that says how the frame's rows are named (a :class:`RowNaming`; a file's rows when
+#: absent), set by :func:`named_by_index_label`
+ROW_NAMING = "row_naming"
+
+
+class RowNaming(enum.Enum):
+    """How messages and reports name a row of the data, declared once: a file's row by its number in the file (a
+    sheet's row, a text file's line), a data frame's row by its index label (the label pandas shows and the scores
+    table keeps), never by a count of our own."""
+
+    FILE_ROW = ("row", "rows", "Row")
+    INDEX_LABEL = ("index label", "index labels", "Index label")
+
+    def __init__(self, one: str, several: str, heading: str) -> None:
+        self.one = one
+        self.several = several
+        self.heading = heading  # a table column's heading
+
+    def of(self, count: int) -> str:
+        """The word for ``count`` rows: 'row' / 'rows', 'index label' / 'index labels'."""
+        return self.one if count == 1 else self.several
+
+    def one_row(self, number: int) -> str:
+        """One row by its number (data.moments.row_numbers): 'row 106' / 'index label 105'."""
+        return f"{self.one} {number}"
+
+
+def row_naming(frame: pd.DataFrame | pd.Series) -> RowNaming:
+    """How ``frame``'s rows are named (:data:`ROW_NAMING`): a file's rows unless :func:`named_by_index_label` said
+    otherwise."""
+    return frame.attrs.get(ROW_NAMING, RowNaming.FILE_ROW)
+
+
+def named_by_index_label(frame: pd.DataFrame) -> pd.DataFrame:
+    """A data frame given by a Python caller, its rows named by their index labels (data.moments.row_numbers gives
+    the labels themselves) when the index holds distinct whole numbers; a frame indexed otherwise (by text, say)
+    keeps rows named by their positions, counted from 1."""
+    index = frame.index
+    if len(index) and pd.api.types.is_integer_dtype(index) and index.is_unique:
+        frame = frame.copy(deep=False)  # the caller's frame keeps its attrs
+        frame.attrs[ROW_NAMING] = RowNaming.INDEX_LABEL
+    return frame
+
+
+def rows_listed(numbers, shown: int = 5, ids=(), naming: RowNaming = RowNaming.FILE_ROW) -> str:
     """Rows named by their numbers (data.moments.row_numbers), the first ``shown`` of them, each with its id when
-    ``ids`` gives one (one per row, None where a row has none): 'row 711 ('Total responses: 1204')',
-    'rows 152, 154, 424, 709, 710 and 3 more'."""
+    ``ids`` gives one (one per row, None where a row has none), in the words of ``naming``: 'row 711 ('Total
+    responses: 1204')', 'rows 152, 154, 424, 709, 710 and 3 more', 'index labels 151, 153'."""
     numbers = [int(n) for n in numbers]
     ids = list(ids) if len(ids) == len(numbers) else [None] * len(numbers)
     listed = ", ".join(str(n) + (f" ('{printable(str(i))[:40]}')" if i is not None else "")
                        for n, i in zip(numbers[:shown], ids))
     more = f" and {len(numbers) - shown} more" if len(numbers) > shown else ""
-    return f"{'row' if len(numbers) == 1 else 'rows'} {listed}{more}"
+    return f"{naming.of(len(numbers))} {listed}{more}"
 
 
 def cell_words(frame: pd.DataFrame | pd.Series, column: str, row: int) -> str:
     """Where a cell is, for a message: 'row 425, cell E425' for a sheet's table (``row``: the number of the row as
-    data.moments.row_numbers gives it, the sheet's own), 'row 425' otherwise."""
+    data.moments.row_numbers gives it, the sheet's own), 'row 425' otherwise, 'index label 424' in a data frame."""
     letter = frame.attrs.get(SHEET_COLUMNS, {}).get(column)
-    return f"row {row}" + (f", cell {letter}{row}" if letter else "")
+    return row_naming(frame).one_row(row) + (f", cell {letter}{row}" if letter else "")
 
 
 def rows_described(frame: pd.DataFrame) -> str:

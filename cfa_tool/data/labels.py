@@ -12,6 +12,7 @@ import unicodedata
 from typing import TYPE_CHECKING
 
 from cfa_tool.errors import printable
+from cfa_tool.options import Option
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -84,11 +85,12 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
         more = f" and {len(said) - shown} more" if len(said) > shown else ""
         listed, more = (f"{', '.join(named)}", more) if more else (listed, "")
         first = printable(said[0][0]).replace("'", "")
+        filter_text = f"{printable(column)} != '{first}'"
         notes.append(f"in the {part} column '{printable(column)}', {listed}{more} read{'s' if len(said) == 1 else ''} "
                      f"like no answer, yet {'was' if len(said) == 1 else 'were'} kept as "
                      f"{f'a {unit}' if len(said) == 1 else f'{unit}s'} of {'its' if len(said) == 1 else 'their'} own (words that say no "
                      f"answer are read as missing in item columns only); if such rows have no {unit}, leave them out "
-                     f"with a row filter such as --keep \"{printable(column)} != '{first}'\"")
+                     f"with a row filter such as {Option.KEEP.given(filter_text)}")
     return notes
 
 

@@ -115,8 +115,11 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
 
     from cfa_tool.data.moments import row_numbers
 
+    from cfa_tool.data.kept_rows import row_naming
+
     data_name = base_name(data_source)
     rows = row_numbers(frame)
+    naming = row_naming(frame)
     found: dict[object, list[tuple[str, float, np.ndarray, str | None]]] = {}
     codings = spec.answer_codings()
     for name, (low, high, keying, named) in declared_scales(spec, frame).items():
@@ -137,8 +140,8 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
     for keying, stray in found.items():
         shown = []
         for name, v, where, label in stray[:6]:
-            cells = (f"row {where[0]}" if len(where) == 1 else
-                     f"{len(where)} cells: rows {', '.join(str(r) for r in where[:3])}"
+            cells = (naming.one_row(where[0]) if len(where) == 1 else
+                     f"{len(where)} cells: {naming.several} {', '.join(str(r) for r in where[:3])}"
                      + (" and more" if len(where) > 3 else ""))
             shown.append(f"'{name}' {v:g}" + (f" '{label}'" if label else "") + f" ({cells})")
         more = f" and {len(stray) - 6} more" if len(stray) > 6 else ""
@@ -186,6 +189,7 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
     judged = [x for x in spec.observed_names if x in scales or (labels.get(x) and x in frame.columns)]
     if not judged:
         return []
+    from cfa_tool.data.kept_rows import row_naming, rows_listed
     from cfa_tool.data.moments import row_numbers
 
     data_name = base_name(data_source)
@@ -202,9 +206,7 @@ def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict |
     def listed(mask) -> str:
         nonlocal rows
         rows = row_numbers(frame) if rows is None else rows
-        where = rows[mask]
-        shown = ", ".join(str(r) for r in where[:5])
-        return f"row{'s' if len(where) > 1 else ''} {shown}" + (f" and {len(where) - 5} more" if len(where) > 5 else "")
+        return rows_listed(rows[mask], naming=row_naming(frame))
 
     for x in judged:
         column = columns.get(x)

@@ -10,6 +10,7 @@ import pandas as pd
 
 from cfa_tool.errors import printable
 from cfa_tool.input_files import base_name
+from cfa_tool.options import Option
 
 #: the columns a note names before it counts the rest
 NAMED_COLUMNS = 8
@@ -78,6 +79,6 @@ def kept_codes_note(source: str | Path, kept: list[tuple[str, float, int]], filt
     more = f" and {len(kept) - NAMED_COLUMNS} more" if len(kept) > NAMED_COLUMNS else ""
     open_ = [(column, code) for column, code, _ in kept if not _left_out(column, code, filters)]
     advice = (f"; to leave those rows out, give a row filter such as "
-              f"--keep \"{printable(str(open_[0][0]))} != {open_[0][1]:g}\"" if open_ else "")
+              f"{Option.KEEP.given(f'{printable(str(open_[0][0]))} != {open_[0][1]:g}')}" if open_ else "")
     return (f"{base_name(source)}: --missing-codes applies to the model's items; other columns keep such a value as "
             f"it is ({shown}{more}){advice}")

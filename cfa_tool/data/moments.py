@@ -13,7 +13,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.answer_scales import MOST_WORDS_SHOWN, distinct_words, stray_text, suggested_statement
-from cfa_tool.data.kept_rows import cell_words
+from cfa_tool.data.kept_rows import ROW_NAMING, RowNaming, cell_words, row_naming
 from cfa_tool.errors import DataError, EstimationError, printable
 from cfa_tool.options import Option
 from cfa_tool.method import MissingData
@@ -42,6 +42,8 @@ class SampleMoments:
     unanswered_rows: np.ndarray | None = field(default=None, repr=False, compare=False)
     #: their ids (data.row_ids: an id column or the file's row names; None where a row has none), when known
     unanswered_ids: tuple = field(default=(), repr=False, compare=False)
+    #: how the row numbers above name rows (data.kept_rows.RowNaming: a file's rows, a data frame's index labels)
+    row_naming: RowNaming = field(default=RowNaming.FILE_ROW, repr=False, compare=False)
 
 
 def numeric_columns(frame: pd.DataFrame, names: tuple[str, ...], source: str) -> np.ndarray:
@@ -345,9 +347,12 @@ def file_rows_index(numbers) -> pd.Index:
 
 
 def row_numbers(frame: pd.DataFrame | pd.Series) -> np.ndarray:
-    """1-based row numbers as messages name rows: the index + 1 when it counts rows (a file's rows, whose reader
-    set it by :func:`file_rows_index`, also after row filters; a data frame's 0-based rows), else positions."""
+    """The numbers messages name rows by: a data frame's index labels when its rows are named by them
+    (data.kept_rows.named_by_index_label), else 1-based row numbers: the index + 1 when it counts rows (a file's rows,
+    whose reader set it by :func:`file_rows_index`, also after row filters), else positions."""
     index = frame.index
+    if frame.attrs.get(ROW_NAMING) is RowNaming.INDEX_LABEL and index.dtype.kind in "iu":  # labels of whole numbers
+        return np.asarray(index, dtype=np.int64)
     if isinstance(index, pd.RangeIndex) and index.start >= 0 and index.step == 1:  # the common case, without type checks
         return np.arange(index.start + 1, index.stop + 1)
     if pd.api.types.is_integer_dtype(index) and index.is_unique and len(index) and index.min() >= 0:
@@ -371,7 +376,8 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
     w = pd.to_numeric(frame[weights]).to_numpy(dtype=float) if weights is not None else None
     p = values.shape[1]
     if missing == MissingData.FULL_INFORMATION:  # the member or its word
-        return _incomplete_moments(values, names, source, file_source, group, len(frame), w, row_numbers(frame))
+        return _incomplete_moments(values, names, source, file_source, group, len(frame), w, row_numbers(frame),
+                                   row_naming(frame))
     complete = None if finite else ~np.isnan(values).any(axis=1)  # checked finite: every row is complete
     every_row = complete is None or bool(complete.all())
     data = values if every_row else values[complete]
@@ -394,7 +400,8 @@ def sample_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str, gro
         cov = (centred * w[:, None]).T @ centred / w.sum()
     _check_moments(cov, means, names, source)
     numbers = row_numbers(frame) if every_row else row_numbers(frame)[complete]
-    return SampleMoments(tuple(names), cov, means, n, len(frame), len(frame) - n, file_source, group, data, numbers)
+    return SampleMoments(tuple(names), cov, means, n, len(frame), len(frame) - n, file_source, group, data, numbers,
+                         row_naming=row_naming(frame))
 
 
 def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,
@@ -406,7 +413,8 @@ def moments_with_gaps(values: np.ndarray, names: tuple[str, ...], source: str,
 
 
 def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str, group, rows_read: int,
-                        weights: np.ndarray | None = None, numbers: np.ndarray | None = None) -> SampleMoments:
+                        weights: np.ndarray | None = None, numbers: np.ndarray | None = None,
+                        naming: RowNaming = RowNaming.FILE_ROW) -> SampleMoments:
     from cfa_tool.data.em import SingularCovariance, em_saturated
     from cfa_tool.data.patterns import pattern_data
 
@@ -450,7 +458,7 @@ def _incomplete_moments(values: np.ndarray, names, source: str, file_source: str
     _check_moments(sigma, mu, names, source)
     return SampleMoments(tuple(names), sigma, mu, n, rows_read, rows_read - n, file_source, group, data,
                          numbers[answered] if numbers is not None else None,
-                         unanswered_rows=numbers[~answered] if numbers is not None else None)
+                         unanswered_rows=numbers[~answered] if numbers is not None else None, row_naming=naming)
 
 
 def missing_summary(frame: pd.DataFrame, names: tuple[str, ...], limit: int = 20,

@@ -23,16 +23,18 @@ judgement needs at least ten other answers.
 from __future__ import annotations
 
 import enum
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 import pandas as pd
 
 from cfa_tool.data.descriptives import answer_extremes
+from cfa_tool.data.kept_rows import RowNaming, row_naming
 from cfa_tool.data.moments import item_values
 from cfa_tool.errors import printable
 from cfa_tool.input_files import base_name
 from cfa_tool.language.names import written_name
+from cfa_tool.options import Option
 
 MIN_OTHERS = 10  # answers a judgement needs besides the value judged
 FAR_RANGES = 2.0  # a row with values further beyond the others than this many times their range in half its columns
@@ -55,7 +57,8 @@ class OddKind(enum.Enum):
 class OddValues:
     """Values of one kind that look like no answers: a code (``kind`` MISSING_CODE, one ``value`` in several
     columns) or one row (the other kinds: ``values`` per column).  ``rows`` are row numbers (as the file
-    numbers them, data.moments.row_numbers); ``answers`` counts the cells."""
+    numbers them, data.moments.row_numbers; a data frame's index labels, as ``naming`` says); ``answers`` counts the
+    cells."""
 
     kind: OddKind
     columns: tuple[str, ...]
@@ -63,6 +66,7 @@ class OddValues:
     rows: tuple[int, ...]
     answers: int
     others: tuple[float, float]  # lowest and highest of the other answers (over the columns named)
+    naming: RowNaming = RowNaming.FILE_ROW  # how ``rows`` name the rows (data.kept_rows.RowNaming)
 
     def caution(self, source: str) -> str:
         """The one line a report shows first: the columns, the value, how many rows and which."""
@@ -74,7 +78,8 @@ class OddValues:
             where = (f"The item column {printable(self.columns[0])} of {name} holds" if len(self.columns) == 1 else
                      f"{len(self.columns)} item columns of {name} ({_listed(self.columns)}) hold")
             return (f"{where} the value "
-                    f"{value} ({self.answers} answers in {len(self.rows)} {rows}: {rows} {_listed(self.rows)}), "
+                    f"{value} ({self.answers} answers in {len(self.rows)} {rows}: {self.naming.of(len(self.rows))} "
+                    f"{_listed(self.rows)}), "
                     f"far outside the other answers ({_number(low)} to {_number(high)}): a missing-value code read "
                     f"as an answer?")
         shown = ", ".join(f"{printable(c)} {_number(v)}" for c, v in zip(self.columns[:SHOWN], self.values[:SHOWN]))
@@ -84,7 +89,8 @@ class OddValues:
                 OddKind.MEANS_ROW: "the means of the other rows' answers"}[self.kind]
         guess = ("a totals or means row, or a typing error?" if self.kind is OddKind.FAR_BEYOND
                  else "a totals or means row of a spreadsheet?")
-        return (f"Row {self.rows[0]} of {name} holds {what} in {len(self.columns)} item "
+        row = self.naming.one_row(self.rows[0])
+        return (f"{row[0].upper()}{row[1:]} of {name} holds {what} in {len(self.columns)} item "
                 f"column{'s' if len(self.columns) != 1 else ''} ({shown}{more}): {guess}")
 
     def kept_words(self) -> str:
@@ -98,19 +104,20 @@ class OddValues:
                     f"({self.answers} answer{'s' if self.answers != 1 else ''}), far outside the other answers "
                     f"({_number(low)} to {_number(high)}): perhaps a missing-value code")
         if self.kind is OddKind.FAR_BEYOND:
-            return (f"row {self.rows[0]}, with values far beyond every other row's answers ({_number(low)} to "
+            return (f"{self.naming.one_row(self.rows[0])}, with values far beyond every other row's answers ({_number(low)} to "
                     f"{_number(high)}) in {len(self.columns)} item column{'s' if len(self.columns) != 1 else ''}: "
                     f"perhaps a totals row or a typing error")
         which = "sums" if self.kind is OddKind.SUMS_ROW else "means"
-        return (f"row {self.rows[0]}, whose values equal the {which} of the other rows' answers in every item "
+        return (f"{self.naming.one_row(self.rows[0])}, whose values equal the {which} of the other rows' answers in every item "
                 f"column it answers ({len(self.columns)}): perhaps a {'totals' if which == 'sums' else 'means'} row")
 
     def advice(self) -> str:
         if self.kind is OddKind.MISSING_CODE:
             return (f"If {_number(self.values[0])} means 'no answer', give --missing-codes {_number(self.values[0])} "
                     f"(or correct those answers in the file).")
-        return (f"Delete row {self.rows[0]} from the file (or leave it out with a --keep filter) if it holds no "
-                f"one's answers; otherwise check those answers.")
+        holder = "data frame" if self.naming is RowNaming.INDEX_LABEL else "file"
+        return (f"Delete {self.naming.one_row(self.rows[0])} from the {holder} (or leave it out with a row filter, "
+                f"{Option.KEEP}) if it holds no one's answers; otherwise check those answers.")
 
     def to_dict(self) -> dict:
         return {"kind": self.kind.value, "columns": list(self.columns), "values": list(self.values),
@@ -122,7 +129,9 @@ def odd_values(frame: pd.DataFrame, columns: tuple[str, ...] | list[str],
     """What in ``columns`` of ``frame`` looks like no answers (see the module's rules), codes first.  ``values``:
     the columns' ``data.moments.item_values`` when already taken out of ``frame``."""
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):  # values near the float limit judge as inf
-        return _odd_values(frame, columns, row_numbers, values)
+        found = _odd_values(frame, columns, row_numbers, values)
+    naming = row_naming(frame)
+    return found if naming is RowNaming.FILE_ROW else tuple(replace(o, naming=naming) for o in found)
 
 
 def _odd_values(frame: pd.DataFrame, columns, row_numbers, X) -> tuple[OddValues, ...]:

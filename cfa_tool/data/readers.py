@@ -23,13 +23,13 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.kept_rows import SHEET_COLUMNS, rows_listed
+from cfa_tool.data.kept_rows import SHEET_COLUMNS, row_naming, rows_listed
 from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
 from cfa_tool.errors import DataError, printable
 from cfa_tool.options import Option
-from cfa_tool.input_files import check_input_path, input_bytes, normalise_line_ends, text_lines, utf16_text
+from cfa_tool.input_files import check_input_path, input_bytes, line_count, utf16_text
 from cfa_tool.numbers import number
 
 if TYPE_CHECKING:
@@ -66,6 +66,14 @@ class LoadedData:
     cautions: tuple = ()
     #: how a delimited text file was read (TextReading: encoding, separator, decimal mark); None for other files
     reading: TextReading | None = None
+    #: where an option (--names-row) said the column names are, in the words of a message about a missing column
+    #: ('' when the first row with values held them)
+    names_row_hint: str = ""
+
+    def column_hint(self) -> str:
+        """Words for a message about a missing column: which sheet of a workbook of several was read, and the row
+        an option said holds the column names."""
+        return self.sheet_hint() + self.names_row_hint
 
     def sheet_hint(self) -> str:
         """Words for a message about a missing column: which sheet of a workbook of several was read."""
@@ -85,7 +93,7 @@ STATA_SUFFIXES = (".dta",)
 def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               text_columns: tuple[str, ...] = (), items: Collection[str] | None = None,
               listed: dict[str, frozenset[str]] | None = None, filters: Collection = (),
-              names_row: int | None = None) -> LoadedData:
+              names_row: int | None = None, names_option: Option = Option.NAMES_ROW) -> LoadedData:
     """Any supported file -> LoadedData; ``missing_codes`` are values that mean 'no answer'; ``text_columns``
     (an id column) are read from delimited text as written ('007' stays '007').  ``items``: the model's item
     columns, the only ones whose text cells and value labels that say no answer ('Not applicable', 9 'refused') are
@@ -94,7 +102,8 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     words that the model's 'answers' statements code, answers whatever they say.  ``filters``: the row filters the
     caller applies next (data.filters.RowFilter), which the notes do not suggest again.  ``names_row``: the row (of a
     sheet) or line (of a text file) that holds the column names, the rows above it not read (a survey platform's
-    question texts above the item codes).  The frame's index numbers its rows as the file does (a sheet's rows, a
+    question texts above the item codes), given by ``names_option`` (the option every message about the row of names
+    names: replicate's validation file has its own).  The frame's index numbers its rows as the file does (a sheet's rows, a
     text file's lines: data.moments.file_rows_index); rows with no value in any column are left out with a note."""
     path = Path(path)
     suffix = path.suffix.lower()
@@ -106,13 +115,13 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         raise DataError(f"'{path}' is not an Excel workbook, so a sheet cannot be chosen")
     if names_row is not None and suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         raise DataError(f"'{path}' is an {'SPSS' if suffix in SPSS_SUFFIXES else 'Stata'} file, whose variables have "
-                        f"their names, so a row of column names ({Option.NAMES_ROW}) cannot apply")
+                        f"their names, so a row of column names ({names_option}) cannot apply")
     if suffix in EXCEL_SUFFIXES:
         notes: list[str] = []
         names: list[pd.Series] = []
         sheets: list[str] = []
         hidden: list = []
-        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, items, names_row), str(path),
+        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, items, names_row, names_option), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None, cautions=tuple(hidden),
                             sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else ())
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
@@ -123,7 +132,7 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         notes = []
         names = []
         reading: list[TextReading] = []
-        loaded = LoadedData(read_table(path, notes, names, text_columns, items, names_row, reading), str(path),
+        loaded = LoadedData(read_table(path, notes, names, text_columns, items, names_row, reading, names_option), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None,
                             reading=reading[0] if reading else None)
         if loaded.reading is not None and not loaded.reading.plain():  # said when it is not plain UTF-8 with commas
@@ -147,6 +156,11 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
     if code_notes:
         loaded = replace(loaded, notes=loaded.notes + code_notes)
+    if names_row is not None:
+        word = "row" if suffix in EXCEL_SUFFIXES else "line"
+        loaded = replace(loaded, names_row_hint=f"; its column names were read from {word} {names_row}, as "
+                                                f"{names_option.given(names_row)} asks: give the {word} that holds the "
+                                                f"model's names, or leave the option out if the first {word} does")
     return loaded
 
 
@@ -267,7 +281,7 @@ def _composed_names(loaded: LoadedData) -> LoadedData:
 
 def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list | None = None,
                 sheets_out: list | None = None, hidden_out: list | None = None, items=None,
-                names_row: int | None = None) -> pd.DataFrame:
+                names_row: int | None = None, names_option: Option = Option.NAMES_ROW) -> pd.DataFrame:
     try:
         import openpyxl
         from openpyxl.utils import get_column_letter
@@ -303,10 +317,10 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     if first is None:
         raise DataError(f"{where} is empty")
     if names_row is not None:
-        first = _names_row_start(names_row, len(rows), first, where, "row")
+        first = _names_row_start(names_row, len(rows), first, where, "row", names_option)
         if not any(v not in (None, "") for v in rows[first]):
-            raise DataError(f"{where}: row {names_row}, named by {Option.NAMES_ROW}, is empty")
-        notes.append(_names_row_note(where, names_row, "row"))
+            raise DataError(f"{where}: row {names_row}, named by {names_option}, is empty")
+        notes.append(_names_row_note(where, names_row, "row", names_option))
     rows = rows[first:]  # empty rows above the header
     title = None if names_row is not None else _title_above_header(rows)
     if title is not None:
@@ -326,16 +340,17 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     while header and header[-1] in (None, ""):
         header.pop()
     row_names = len(header) > 1 and not header[0]
+    named_by = _named_by(names_row, names_option)
     for position, name in enumerate(header, start=1 + skipped):
         if not name and not (position == 1 + skipped and row_names):
-            raise DataError(f"{path} (sheet '{ws.title}'): column {position} of the header row has no name")
-    _check_duplicates(header, f"{path} (sheet '{ws.title}')")
+            raise DataError(f"{path} (sheet '{ws.title}'): column {position} of the header row{named_by} has no name")
+    _check_duplicates(header, f"{path} (sheet '{ws.title}')", named_by)
     width = len(header)
     for number, r in enumerate(rows[1:], start=first + 2):
         beyond = [k for k, v in enumerate(r[width:], start=width + 1 + skipped) if v not in (None, "")]
         if beyond:
             raise DataError(f"{path} (sheet '{ws.title}'): row {number} has a value in column {beyond[0]}, which has "
-                            f"no name in the header row ({_header_taken(f'row {first + 1}')})")
+                            f"no name in the header row ({_header_taken(f'row {first + 1}', names_option)})")
     _check_merged_answers(ws, where, header, first + 2, skipped)
     filled = [k for k, r in enumerate(rows[1:], start=first + 2) if any(v is not None for v in r[:width])]
     # every row up to the last one with a value, empty ones too: they are left out, and named, by drop_blank_rows
@@ -349,22 +364,21 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
                                          _filter_kept(ws, header, skipped)))
     if not body:
         raise DataError(f"{path} (sheet '{ws.title}') has a header but no rows of data")
-    found = dict.fromkeys(MISSING_MARKERS, 0)
-    marked: dict[int, list] = {}
+    marked: dict[int, dict[str, int]] = {}  # column position -> {marker: cells}, counted once
     for r in body:
         for k, v in enumerate(r):
-            if isinstance(v, str) and v.strip() in found:
-                found[v.strip()] += 1
-                marked.setdefault(k, []).append(v)
+            if isinstance(v, str) and v.strip() in _MARKER_SET:
+                counted = marked.setdefault(k, {})
+                counted[v.strip()] = counted.get(v.strip(), 0) + 1
                 r[k] = None
-    _say_markers(found, where, notes)
+    _say_markers(_marker_totals(marked.values()), where, notes)
     if any(v is None for r in body for v in r):
         _check_uncomputed_formulas(path, ws.title, first)
     frame = pd.DataFrame(body, columns=header, index=file_rows_index(kept))
     frame.attrs[SHEET_COLUMNS] = {name: get_column_letter(skipped + k + 1) for k, name in enumerate(header) if name}
     if marked:
-        _keep_markers(frame, {header[k]: cells for k, cells in marked.items()})
-    _check_header_rows(frame, where, False, items=items, header_row=first + 1)
+        frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
+    _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option)
     if row_names:
         frame = _split_row_names(frame, names_out)
         notes.append(f"{path} (sheet '{ws.title}'): the first column has no name in the header and was read as row "
@@ -406,9 +420,9 @@ class HiddenRows:
                 f"file holds them.")
 
     def advice(self) -> str:
-        keep = f" (here --keep \"{printable(self.keep)}\")" if self.keep else ""
-        return (f"If the hidden rows are not to be analysed, leave them out with a --keep filter on the column the "
-                f"workbook's filter uses{keep}, or delete them from a copy of the file.")
+        keep = f" (here {Option.KEEP.given(printable(self.keep))})" if self.keep else ""
+        return (f"If the hidden rows are not to be analysed, leave them out with a row filter ({Option.KEEP}) on the "
+                f"column the workbook's filter uses{keep}, or delete them from a copy of the file.")
 
     def to_dict(self) -> dict:
         return {"sheet": self.sheet, "rows": list(self.rows), "of": self.of, "filtered": self.filtered,
@@ -491,10 +505,11 @@ def _check_uncomputed_formulas(path: Path, title: str, first: int) -> None:
                                 f"the workbook in a spreadsheet program, or save the table as CSV")
 
 
-def _header_taken(where: str) -> str:
-    """Which row was read as the header, and what to do when a title stands above the real one."""
+def _header_taken(where: str, names_option: Option = Option.NAMES_ROW) -> str:
+    """Which row was read as the header, and what to do when a title stands above the real one (``names_option``:
+    the option that names the row of column names of this file)."""
     return (f"{where}, the first with values, was taken as the header; if the column names are in a later row, "
-            f"read them from it with {Option.NAMES_ROW} (its number), or delete the rows above them")
+            f"read them from it with {names_option} (its number), or delete the rows above them")
 
 
 def _read_labelled(path: Path) -> LoadedData:
@@ -525,12 +540,19 @@ def _read_labelled(path: Path) -> LoadedData:
     return LoadedData(frame, str(path), labels, values, non_answers=declared)
 
 
-def _check_duplicates(header: list[str], where: str) -> None:
+def _check_duplicates(header: list[str], where: str, named_by: str = "") -> None:
+    """Every column name once (``named_by``: :func:`_named_by`, the option that named the header's row)."""
     seen: set[str] = set()
     for name in header:
         if name in seen:
-            raise DataError(f"{where}: the column name '{name}' appears more than once in the header")
+            raise DataError(f"{where}: the column name '{name}' appears more than once in the header{named_by}")
         seen.add(name)
+
+
+def _named_by(names_row: int | None, option: Option) -> str:
+    """Words for a message about a header read from the row an option named (--names-row 2), which may be the
+    wrong row: ' (the row named by --names-row 2)'; '' when no option named it."""
+    return "" if names_row is None else f" (the row named by {option.given(names_row)})"
 
 
 MAX_TEXT_BYTES = 1_000_000_000  # a delimited data file
@@ -638,7 +660,7 @@ def _delimiter(text: str) -> str:
 
 
 def _check_field_counts(text: str, delimiter: str, named: int, width: int, path: Path, header_line: int = 1,
-                        lines: list[int] | None = None) -> int:
+                        lines: list[int] | None = None, names_option: Option = Option.NAMES_ROW) -> int:
     """Every data record must have a field for each of the ``named`` columns and no values beyond
     them.  Empty fields after them (a delimiter at the end of each line, as some programs write
     them; ``width`` fields in the header line) are accepted.  Returns the largest number of fields
@@ -657,12 +679,12 @@ def _check_field_counts(text: str, delimiter: str, named: int, width: int, path:
         if named < n <= width:
             column = next(k for k in range(named, n) if fields[k].strip()) + 1
             raise DataError(f"{path}: line {line} has a value in column {column}, which has no name in the header "
-                            f"({_header_taken(f'line {header_line}')})")
+                            f"({_header_taken(f'line {header_line}', names_option)})")
         others = [d for d in _DELIMITERS if d != delimiter and d in delimiter.join(fields)]
         hint = (f"; the line holds '{_shown_delimiter(others[0])}', while the header is separated by "
                 f"'{_shown_delimiter(delimiter)}'") if others and n == 1 else ""
         more = "more" if n > named else "fewer"
-        taken = f"; {_header_taken(f'line {header_line}')}" if n > named else ""
+        taken = f"; {_header_taken(f'line {header_line}', names_option)}" if n > named else ""
         raise DataError(f"{path}: line {line} has {n} fields but the header has {named} ({more} than the header{hint}); "
                         f"every row needs one value (or an empty field) per column{taken}")
     return widest
@@ -674,11 +696,12 @@ def _shown_delimiter(d: str) -> str:
 
 def read_table(path: str | Path, notes: list[str] | None = None, row_names: list | None = None,
                text_columns: tuple[str, ...] = (), items=None, names_row: int | None = None,
-               reading: list | None = None) -> pd.DataFrame:
+               reading: list | None = None, names_option: Option = Option.NAMES_ROW) -> pd.DataFrame:
     """A delimited text file as a DataFrame, its rows indexed by their lines (data.moments.file_rows_index).
     ``notes`` receives what was done to read it that the report should mention (empty fields dropped at the ends
     of rows, a row-name column); ``row_names`` receives the row-name column's values (a Series of text) when the
-    file has one; ``names_row``: the line of the column names (the lines above it are not read); ``reading``
+    file has one; ``names_row``: the line of the column names (the lines above it are not read), given by
+    ``names_option``; ``reading``
     receives how the text was read (:class:`TextReading`)."""
     path = Path(path)
     raw = input_bytes(path, "data file", DataError, MAX_TEXT_BYTES)
@@ -692,13 +715,13 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     if first is None:
         raise DataError(f"data file '{path}' is empty")
     if names_row is not None:
-        lines_in_file = len(text_lines(normalise_line_ends(text)))
-        start = _names_row_start(names_row, lines_in_file, first[0] - 1, str(path), "line") + 1
+        lines_in_file = line_count(text)
+        start = _names_row_start(names_row, lines_in_file, first[0] - 1, str(path), "line", names_option) + 1
         first = next(((line, fields) for line, fields in _records(text, delimiter) if line >= start), None)
         if first is None or first[0] != start:
-            raise DataError(f"{path}: line {start}, named by {Option.NAMES_ROW}, is empty")
+            raise DataError(f"{path}: line {start}, named by {names_option}, is empty")
         if notes is not None:
-            notes.append(_names_row_note(str(path), start, "line"))
+            notes.append(_names_row_note(str(path), start, "line", names_option))
     header_line, header = first
     header = [h.strip() for h in header]
     trailing = 0
@@ -706,20 +729,21 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         header.pop()
         trailing += 1
     has_row_names = len(header) > 1 and not header[0]
+    named_by = _named_by(names_row, names_option)
     for position, name in enumerate(header, start=1):
         if not name and not (position == 1 and has_row_names):
-            raise DataError(f"{path}: line {header_line}: column {position} of the header has no name")
-    _check_duplicates(header, str(path))
+            raise DataError(f"{path}: line {header_line}: column {position} of the header{named_by} has no name")
+    _check_duplicates(header, str(path), named_by)
     lines: list[int] = []  # the line each row starts on: messages name rows by it
-    body_start = _offset_of_line(text, header_line)
-    widest = _check_field_counts(text[body_start:], delimiter, len(header), len(header) + trailing, path, header_line,
-                                 lines)
-    decimal = _decimal_mark(text[body_start:], delimiter)
+    body = text[_offset_of_line(text, header_line):]  # from the header line on, cut out once
+    widest = _check_field_counts(body, delimiter, len(header), len(header) + trailing, path, header_line,
+                                 lines, names_option)
+    decimal = _decimal_mark(body, delimiter)
     if reading is not None:
         reading.append(TextReading(encoding, delimiter, decimal, header_line))
     try:
         frame = pd.read_csv(
-            io.StringIO(text[body_start:]),
+            io.StringIO(body),
             sep=delimiter,
             header=0,
             names=list(range(widest)),
@@ -742,8 +766,8 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     if len(lines) == len(frame):  # (always: the records counted as the table parser reads them)
         frame.index = file_rows_index(lines)
     frame = blank_text_as_missing(frame, text_columns, MISSING_MARKERS, decimal == ",")  # 'NA ' is 'NA'
-    raw = _RawCells(text[body_start:], delimiter, widest, len(header), frame.index)
-    _check_header_rows(frame, str(path), decimal == ",", text_columns, items, header_line)
+    raw = _RawCells(body, delimiter, widest, len(header), frame.index)
+    _check_header_rows(frame, str(path), decimal == ",", text_columns, items, header_line, names_option)
     if decimal == ",":
         _check_dotted_thousands(frame, raw, header, path, notes)
         _check_decimal_points(frame, str(path), text_columns)
@@ -761,25 +785,26 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
     return frame
 
 
-def _names_row_start(names_row, rows: int, first: int, where: str, word: str) -> int:
-    """The 0-based position of the row ``--names-row`` names (``rows``: how many the file has; ``first``: the
-    first that is not empty), or an error when it cannot apply."""
+def _names_row_start(names_row, rows: int, first: int, where: str, word: str,
+                     option: Option = Option.NAMES_ROW) -> int:
+    """The 0-based position of the row ``option`` (--names-row) names (``rows``: how many the file has; ``first``:
+    the first that is not empty), or an error when it cannot apply."""
     if isinstance(names_row, bool) or not isinstance(names_row, (int, np.integer)) or names_row < 1:
-        raise DataError(f"the row of column names ({Option.NAMES_ROW}) must be a {word} number (1 or more), not "
+        raise DataError(f"the row of column names ({option}) must be a {word} number (1 or more), not "
                         f"{printable(repr(names_row))[:40]}")
     if names_row > rows:
-        raise DataError(f"{where} has {rows} {word}s, so {word} {names_row} ({Option.NAMES_ROW}) cannot hold the column names")
+        raise DataError(f"{where} has {rows} {word}s, so {word} {names_row} ({option}) cannot hold the column names")
     if names_row - 1 < first:
-        raise DataError(f"{where}: {word} {names_row} ({Option.NAMES_ROW}) is empty; the first {word} with values is "
+        raise DataError(f"{where}: {word} {names_row} ({option}) is empty; the first {word} with values is "
                         f"{first + 1}")
     return int(names_row) - 1
 
 
-def _names_row_note(where: str, names_row: int, word: str) -> str:
-    """The note of a table whose column names were read from a later row (--names-row)."""
+def _names_row_note(where: str, names_row: int, word: str, option: Option = Option.NAMES_ROW) -> str:
+    """The note of a table whose column names were read from a later row (``option``: --names-row)."""
     above = "" if names_row == 1 else (f"; {word} 1 above it was not read" if names_row == 2 else
                                         f"; {word}s 1-{names_row - 1} above it were not read")
-    return f"{where}: the column names were read from {word} {names_row}, as --names-row asks{above}"
+    return f"{where}: the column names were read from {word} {names_row}, as {option.flag} asks{above}"
 
 
 def drop_blank_rows(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, tuple[str, ...]]:
@@ -800,7 +825,7 @@ def drop_blank_rows(frame: pd.DataFrame, where: str) -> tuple[pd.DataFrame, tupl
     numbers = row_numbers(frame)[blank]
     one = len(numbers) == 1
     note = (f"{where}: {len(numbers)} {'row' if one else 'rows'} with no value in any column "
-            f"{'was' if one else 'were'} skipped ({rows_listed(numbers)})")
+            f"{'was' if one else 'were'} skipped ({rows_listed(numbers, naming=row_naming(frame))})")
     return frame[~blank], (note,)
 
 
@@ -819,7 +844,7 @@ MAX_HEADER_ROWS = 3  # further header rows a survey platform writes under the co
 
 
 def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, text_columns=(), items=None,
-                       header_row: int | None = None) -> None:
+                       header_row: int | None = None, names_option: Option = Option.NAMES_ROW) -> None:
     """Rows right under the header that hold text in every column holding numbers below them: survey platforms
     export the question texts and import ids as a second and third header row.  Read as answers they make every
     item column text; the remedy is to delete them, not to recode the answers.  When one of them holds the model's
@@ -862,7 +887,7 @@ def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, tex
                 above = f"the column names of row {header_row}" if header_row is not None else "the column names"
                 raise DataError(f"{where}: row {numbers[k]} holds the model's variable names ({shown}) under "
                                 f"{above}, as survey platforms export question texts above their codes; read the "
-                                f"column names from that row with {Option.NAMES_ROW.given(numbers[k])} (the rows above it are then "
+                                f"column names from that row with {names_option.given(numbers[k])} (the rows above it are then "
                                 f"not read)")
     example = printable(str(frame.iloc[0, position]).strip())[:60]
     rows = f"row {numbers[0]}" if lead == 1 else f"rows {numbers[0]}-{numbers[-1]}"
@@ -919,6 +944,7 @@ _THOUSANDS_DOT = re.compile(r"\d\.\d{3}(?!\d)")
 
 #: cells read as no answer beside empty ones, as statistics packages and spreadsheets write them
 MISSING_MARKERS = ("NA", "N/A", "n/a", "#N/A", "NaN", "nan", ".")
+_MARKER_SET = frozenset(MISSING_MARKERS)
 _MARKER = re.compile(r"(?:^|[,;\t|])\s*\"?(?:" + "|".join(map(re.escape, MISSING_MARKERS)) + r")\"?\s*(?=[,;\t|]|$)",
                      re.MULTILINE)
 
@@ -930,10 +956,16 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
     column's markers kept in ``frame.attrs`` (:data:`MARKED`)."""
     if notes is None or not _MARKER.search(raw.body):
         return
-    cells = raw.frame().apply(lambda column: column.str.strip())
-    _say_markers({m: int((cells == m).to_numpy().sum()) for m in MISSING_MARKERS}, path, notes)
-    if frame is not None:
-        _keep_markers(frame, {name: cells.iloc[:, k].tolist() for k, name in enumerate(header)})
+    cells = raw.frame()
+    marked = {}  # column -> {marker: cells}, counted once for the note and the column's record
+    for k, name in enumerate(header):
+        stripped = cells.iloc[:, k].str.strip()
+        counted = stripped[stripped.isin(MISSING_MARKERS)].value_counts(sort=False)
+        if len(counted):
+            marked[name] = {str(m): int(n) for m, n in counted.items()}
+    _say_markers(_marker_totals(marked.values()), path, notes)
+    if frame is not None and marked:
+        frame.attrs[MARKED] = marked
 
 
 #: the key of DataFrame.attrs that keeps, for each column, the markers of no answer its cells were written as and
@@ -941,18 +973,11 @@ def _note_missing_markers(raw: "_RawCells", header: list[str], path, notes: list
 MARKED = "marked_no_answer"
 
 
-def _keep_markers(frame: pd.DataFrame, written: dict) -> None:
-    """Keep in ``frame.attrs[MARKED]`` each column's cells written as a marker of no answer (``written``: each
-    column's cells as written)."""
-    from collections import Counter
-
-    kept = {}
-    for name, cells in written.items():
-        counted = Counter(c.strip() for c in cells if isinstance(c, str) and c.strip() in MISSING_MARKERS)
-        if counted:
-            kept[name] = dict(counted)
-    if kept:
-        frame.attrs[MARKED] = kept
+def _marker_totals(marked) -> dict[str, int]:
+    """How many cells of each marker of no answer, in the order of MISSING_MARKERS, from each column's counts
+    (``marked``: {marker: cells} per column)."""
+    marked = list(marked)
+    return {m: sum(counted.get(m, 0) for counted in marked) for m in MISSING_MARKERS}
 
 
 def _say_markers(found: dict[str, int], where, notes: list[str] | None) -> None:

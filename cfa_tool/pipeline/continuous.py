@@ -24,7 +24,7 @@ from cfa_tool.assessment.normality import Whitened, mardia, whitened_rows
 from cfa_tool.assessment.reliability import keying_warnings, reliability
 from cfa_tool.assessment.residuals import correlation_residuals
 from cfa_tool.assessment.standardized import r_squared, standardization, standardize_entries
-from cfa_tool.data.kept_rows import rows_listed
+from cfa_tool.data.kept_rows import RowNaming, rows_listed
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, moments_with_gaps
 from cfa_tool.errors import CfaError, OptionError
@@ -226,8 +226,8 @@ def listwise_line(dropped: int, read: int, analysed: int, where: str = "") -> st
 def rows_left_out(groups, missing: MissingData | None,
                   instead: str = FULL_INFORMATION_INSTEAD) -> tuple[tuple[Problem, ...], list[str]]:
     """(cautions, notes) on the rows a fit left out, from ``groups``: (label or None, rows left out, rows read,
-    rows analysed[, the row numbers of the rows that answer nothing[, their ids]]) of each group; listwise deletion by
-    :func:`listwise_problem` (or, for few rows, :func:`listwise_line`), otherwise (full-information ML, pairwise
+    rows analysed[, the row numbers of the rows that answer nothing[, their ids[, how they name rows]]]) of each group;
+    listwise deletion by :func:`listwise_problem` (or, for few rows, :func:`listwise_line`), otherwise (full-information ML, pairwise
     present rows) the rows that answered none of the model variables, in a note naming the first of them."""
     cautions: list[Problem] = []
     notes: list[str] = []
@@ -243,7 +243,9 @@ def rows_left_out(groups, missing: MissingData | None,
                 notes.append(listwise_line(dropped, read, analysed, where))
         else:
             rows = named[0] if named and named[0] is not None and len(named[0]) == dropped else ()
-            listed = f" ({rows_listed(rows, ids=named[1] if len(named) > 1 else ())})" if len(rows) else ""
+            ids = named[1] if len(named) > 1 else ()
+            naming = named[2] if len(named) > 2 else RowNaming.FILE_ROW
+            listed = f" ({rows_listed(rows, ids=ids, naming=naming)})" if len(rows) else ""
             notes.append(f"{dropped} of {read} {'row' if read == 1 else 'rows'}{where} answered none of the model "
                          f"variables and {'was' if dropped == 1 else 'were'} left out{listed}")
     return tuple(cautions), notes
@@ -268,7 +270,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                                                                            layout)
 
     left_out, warnings = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs, m.unanswered_rows,
-                                         m.unanswered_ids) for label, m in groups],
+                                         m.unanswered_ids, m.row_naming) for label, m in groups],
                                        options.missing)  # cautions first in every view, notes among the warnings
     fit = None
     robust = None

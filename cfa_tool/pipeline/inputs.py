@@ -13,6 +13,7 @@ import pandas as pd
 
 from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_for_summary_statistics
 from cfa_tool.data.groups import split_moments
+from cfa_tool.data.kept_rows import RowNaming, named_by_index_label, row_naming
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
 from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.matching import answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges
@@ -27,7 +28,7 @@ from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_desi
                                          refuse_shared_clusters)
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
-from cfa_tool.options import Option, option_in_both
+from cfa_tool.options import Option, option_in_both, own_keywords
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, printable
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
@@ -113,18 +114,19 @@ def of_summary_statistics(result, moments, notes) -> object:
 
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               text_columns: tuple[str, ...] = (), items=None, listed=None, filters=(),
-              names_row: int | None = None) -> LoadedData:
+              names_row: int | None = None, names_option: Option = Option.NAMES_ROW) -> LoadedData:
     """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to;
-    ``filters``: the row filters applied next, which the notes do not suggest again)."""
+    ``filters``: the row filters applied next, which the notes do not suggest again; ``names_option``: the option
+    that gave ``names_row``)."""
     missing_codes = missing_codes_option(missing_codes)
     if isinstance(data, pd.DataFrame):
         if sheet is not None:
             raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
                               f"frame; leave the sheet out")
         if names_row is not None:
-            raise OptionError(f"a row of column names ({Option.NAMES_ROW}) is read from a file, and the "
+            raise OptionError(f"a row of column names ({names_option}) is read from a file, and the "
                               f"data are a data frame, whose columns have their names; leave it out")
-        frame = blank_text_as_missing(data)  # '' and '  ' are no answer, as an empty cell of a file is
+        frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
         frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
         frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items, filters)  # in the items only
         return LoadedData(frame, "<data frame>", notes=blank + tuple(notes))
@@ -133,7 +135,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items,
-                         listed=listed, filters=filters, names_row=names_row)
+                         listed=listed, filters=filters, names_row=names_row, names_option=names_option)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -156,14 +158,15 @@ def keep_option(keep) -> list[str]:
 
 
 def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: tuple[str, ...] = (),
-                  items=None, filters=(), names_row: int | None = None) -> LoadedData:
+                  items=None, filters=(), names_row: int | None = None,
+                  names_option: Option = Option.NAMES_ROW) -> LoadedData:
     """The data read for the model ``spec``, as every command reads them: a missing-value code on a declared scale
     refused, no-answer words and labels read as missing in ``items`` only (None: the model's items), and the words
     its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next."""
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
     listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
     return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed,
-                     filters, names_row)
+                     filters, names_row, names_option)
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
@@ -189,7 +192,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         frame, filter_notes, filters = apply_filters(frame, filters, loaded.source, loaded.value_labels)
         notes += filter_notes
         cautions = kept_cautions(cautions, frame)
-    check_columns(spec, columns, loaded.source, loaded.sheet_hint())
+    check_columns(spec, columns, loaded.source, loaded.column_hint())
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
                                             missing_codes=missing_codes_option(missing_codes))
     notes += coding_notes
@@ -270,12 +273,6 @@ def _no_group_notes(no_group: int, group: str) -> list[str]:
         return []
     return [f"{no_group} {'row has' if no_group == 1 else 'rows have'} no value in the group column '{group}' and "
             f"{'was' if no_group == 1 else 'were'} left out"]
-
-
-#: the keywords of :func:`fit` besides the fit options (an unknown keyword's near names: :func:`make_options`)
-FIT_KEYWORDS = ("model", "data", "group", "reference_group", "sheet", "names_row", "missing_codes", "keep",
-                "covariance", "n_obs", "means", "variables", "matrix", "sds", "divisor", "ordinal",
-                "ordinal_estimator", "id_column", "weights", "cluster", "strata", "weight_kind")
 
 
 def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None, *, group: str | None = None,
@@ -367,12 +364,17 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     loaded = analysed_odd_values(loaded, spec, group)
     by_row = ids_by_row_number(ids, frame)
     with odd_values_named(loaded):
-        result = named_cases(_fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
-                                       ordinal_estimator, design, ids), by_row)
+        result = named_cases(_fit_read_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
+                                            ordinal_estimator, design, ids), by_row)
     reference_group_applies(result, reference_group)
     result = with_missing_reading(with_odd_values(result, loaded, group, spec, design, by_row), loaded, missing_codes)
     repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
+
+
+#: the keywords of :func:`fit` besides the fit options it passes on (an unknown keyword's near names,
+#: make_options), read from its signature once
+FIT_KEYWORDS = own_keywords(fit)
 
 
 def reference_group_applies(results, reference_group: str | None) -> None:
@@ -400,10 +402,13 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     (scores of other data with the fit read them so too) and the values of its items that the file itself marks as
     no answer (``loaded.non_answers``), which the methods paragraph names; and the values of its items that look like
     no answers but were analysed as answers (``loaded.odd_values``), and the row filters that chose its rows
-    (:func:`with_row_filters`), which it names too; and how a text file was read (``loaded.reading``)."""
+    (:func:`with_row_filters`), which it names too; how a text file was read (``loaded.reading``) and how its rows are
+    named (a data frame's by their index labels, data.kept_rows.RowNaming)."""
     result = with_row_filters(result, loaded)
     if loaded.reading is not None:
         result = replace(result, data=replace(result.data, reading=loaded.reading))
+    if row_naming(loaded.frame) is not RowNaming.FILE_ROW:
+        result = replace(result, data=replace(result.data, row_naming=row_naming(loaded.frame)))
     codes = missing_codes_option(missing_codes)
     items = set(result.observed)
     marked = tuple(f for f in loaded.non_answers if f.column in items)
@@ -566,7 +571,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
         return ()
 
     def listed(which: list[int], skipped: bool = False) -> str:
-        """The rows by row number (and id); ``skipped``: say of a row that left reverse-worded items out how
+        """The rows by row number or index label (and id); ``skipped``: say of a row that left reverse-worded items out how
         many of them it answered."""
         def one_row(k: int) -> str:
             r = found.rows[k]
@@ -576,7 +581,7 @@ def same_answer_problems(frame: pd.DataFrame, spec: Spec, ids: dict, scored_only
             return f"{r} ({'; '.join(said)})" if said else str(r)
         shown = [one_row(k) for k in which[:SAME_ANSWER_ROWS_SHOWN]]
         more = len(which) - len(shown)
-        return f"row{'' if len(which) == 1 else 's'} {', '.join(shown)}" + (f" and {more} more" if more else "")
+        return f"{row_naming(frame).of(len(which))} {', '.join(shown)}" + (f" and {more} more" if more else "")
 
     def gave(which: list[int]) -> str:
         answers = sorted({found.answers[k] for k in which})
@@ -781,12 +786,20 @@ def _fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
              design: DesignColumns | None = None, ids: pd.Series | None = None) -> FitResult:
     """The fit of rows of raw data (after reading, filters and model checks), its data summary naming the
     row filters and the rows the file held before them (``ids``: each row's id, data.row_ids, which name the rows
-    left out)."""
+    left out).  fit itself takes :func:`_fit_read_rows`: :func:`with_missing_reading` names the filters with the
+    rest of the reading."""
+    return with_row_filters(_fit_read_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
+                                           ordinal_estimator, design, ids), loaded)
+
+
+def _fit_read_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
+                   design: DesignColumns | None = None, ids: pd.Series | None = None) -> FitResult:
+    """:func:`_fit_rows` without the row filters in its data summary."""
     result = _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator, design,
                             ids)
     if group is not None or design is not None:
         result = with_rows_read(result, loaded)
-    return with_row_filters(result, loaded)
+    return result
 
 
 def with_row_filters(result, loaded: LoadedData):
@@ -1290,5 +1303,6 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        group_rows=tuple(m.n_obs for _, m in groups) if labels else (),
                        group_parameters=tuple(group_parameter_counts(table)) if labels and not ordinal_items else (),
                        zero_weight=len(loaded.frame) - len(frame),
-                       empty_rows=tuple(int(r) for r in row_numbers(answered)[unanswered]))
+                       empty_rows=tuple(int(r) for r in row_numbers(answered)[unanswered]),
+                       row_naming=row_naming(frame))
 

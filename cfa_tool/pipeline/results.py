@@ -11,7 +11,7 @@ import numpy as np
 from cfa_tool.assessment.fit_indices import FitIndices, IndicesToRead
 from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
-from cfa_tool.data.kept_rows import rows_listed
+from cfa_tool.data.kept_rows import RowNaming, rows_listed
 from cfa_tool.errors import EstimationError
 from cfa_tool.language.names import names_text
 from cfa_tool.method import FitMethod
@@ -111,6 +111,8 @@ class CheckResult(Presentable):
     zero_weight: int = 0
     #: the row numbers of the rows that answer no model variable (``empty``), as the file numbers them
     empty_rows: tuple[int, ...] = ()
+    #: how the rows are named (data.kept_rows.RowNaming: a file's row numbers, a data frame's index labels)
+    row_naming: RowNaming = RowNaming.FILE_ROW
 
     @property
     def admissible(self) -> bool:
@@ -144,7 +146,7 @@ class CheckResult(Presentable):
         lines.append(f"Rows: {read} {self.complete} complete{odd}, {self.with_gaps} with missing answers "
                      f"({'used through pairwise present rows for ordinal items' if self.ordinal else 'used by full-information ML'}, "
                      f"the default), {self.empty} with no answer to any model variable"
-                     + (f" ({rows_listed(self.empty_rows)})." if self.empty_rows else "."))
+                     + (f" ({rows_listed(self.empty_rows, naming=self.row_naming)})." if self.empty_rows else "."))
         if self.counted is not None:
             read, complete, gaps, empty = (f"{v:,.10g}" for v in self.counted)
             lines.append(f"Rows counted by their frequency weights, as the fit counts them: {read} read, {complete} "
@@ -227,6 +229,8 @@ class DataSummary:
     odd_values: tuple = ()
     # how a delimited text file was read (data.readers.TextReading: encoding, separator, decimal mark); None otherwise
     reading: object | None = None
+    # how the rows are named (data.kept_rows.RowNaming: a file's row numbers, a data frame's index labels)
+    row_naming: RowNaming = RowNaming.FILE_ROW
 
     @property
     def pair_range(self) -> tuple[int, int] | None:

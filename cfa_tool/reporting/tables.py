@@ -851,7 +851,7 @@ def case_table(result, group: int = 0) -> ReportTable | None:
     gaps = any(c.answered is not None for c in cases)  # full-information ML: distances on the items answered
     shown = cases[:5]
     ids = [[c.id or ""] if named else [] for c in shown]
-    headers = (["Row"] + (["Id"] if named else []) + ["Contribution to chi-square"]
+    headers = ([result.data.row_naming.heading] + (["Id"] if named else []) + ["Contribution to chi-square"]
                + (["Items answered"] if gaps else []) + ["Squared Mahalanobis distance"]
                + (["Squared distance under the model"] if gaps else []) + ["p"])
     values = [[c.row, *i, c.chi_square_share] + ([c.answered] if gaps else []) + [c.mahalanobis]

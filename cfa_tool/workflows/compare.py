@@ -22,7 +22,7 @@ from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import OptionError, estimation_of
-from cfa_tool.options import Option, group_column
+from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import (FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, fit_moments,
                                           full_information_likelihood, listwise_problem, model_structure,
@@ -96,11 +96,6 @@ class Comparison(Presentable):
             **({"data": {"answer_coding": coding_json(self.results[0].data.answer_coding)}}
                if getattr(self.results[0].data, "answer_coding", ()) else {}),
         }
-
-
-#: the keywords of :func:`compare` besides the fit options (an unknown keyword's near names)
-COMPARE_KEYWORDS = ("models", "data", "group", "reference_group", "sheet", "names_row", "missing_codes", "keep",
-                    "ordinal", "ordinal_estimator", "weights", "cluster", "strata", "weight_kind")
 
 
 def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, group: str | None = None,
@@ -213,6 +208,11 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                               len(complete), dropped, fit_options.missing, tuple(notes),
                                               without_group=without_group),
                                    loaded, specs, group, design, dropped, False, False)
+
+
+#: the keywords of :func:`compare` besides the fit options it passes on (an unknown keyword's near names,
+#: make_options), read from its signature once
+COMPARE_KEYWORDS = own_keywords(compare)
 
 
 def _with_data_problems(found: Comparison, loaded, specs, group, design, dropped: int, pairwise: bool,

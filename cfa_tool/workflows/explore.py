@@ -19,6 +19,7 @@ from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.exploration import (CountNote, CountRule, Exploration, ExploreSettings, ExtractionMethod, RotationMethod,
                                   RotationSpec, explore_correlations, from_ordinal_moments, from_sample_moments)
 from cfa_tool.data.answer_words import coding_json, coding_record
+from cfa_tool.data.kept_rows import row_naming
 from cfa_tool.exploration.choices import Placement
 from cfa_tool.exploration.draft import answers_statement, model_name
 from cfa_tool.exploration.factor_count import CLOSE_RMSEA, FitStep, fit_sequence
@@ -59,7 +60,8 @@ class SplitHalves:
     """The two random halves of an explore-then-confirm run."""
 
     seed: int
-    exploration_rows: tuple[int, ...]  # the rows' numbers as the file numbers them (data.moments.row_numbers)
+    #: the rows' numbers as the file numbers them, a data frame's index labels (data.moments.row_numbers)
+    exploration_rows: tuple[int, ...]
     confirmation_rows: tuple[int, ...]
     confirmation: FitResult | None  # the draft model fitted on the confirmation half (None: no usable draft)
     note: str | None = None  # why there is no confirmation fit
@@ -333,7 +335,7 @@ def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: t
     said = f" Left out as dates or times: {listed(dates)}." if dates else ""
     if text and codings:
         general = next((c for c in codings if not c.items), None)
-        unlisted = [printable(c) + (f" ('{printable(cell)}' in row {row})" if cell is not None else "")
+        unlisted = [printable(c) + (f" ('{printable(cell)}' in {row_naming(frame).one_row(row)})" if cell is not None else "")
                     for c in text[:10] for cell, row in [_first_unlisted(frame[c], general)]]
         said += (" Left out as text holding none of the answers file's words (--answers): "
                  + ", ".join(unlisted) + (f" and {len(text) - 10} more" if len(text) > 10 else "") + ".")
@@ -486,7 +488,8 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
                                 f"{cell_words(column, name, row)}) among numbers; correct the cell, or leave it empty "
                                 f"for no answer")
             statement = suggested_statement(values)
-            where = f"{source}: column '{printable(name)}' holds words ('{shown}' in row {row}), and explore analyses numbers"
+            where = (f"{source}: column '{printable(name)}' holds words ('{shown}' in {row_naming(column).one_row(row)}), "
+                     f"and explore analyses numbers")
             if codings:
                 raise DataError(f"{where}: add the column to an 'answers' statement of the answers file (--answers) "
                                 f"with 'for', or take it out of --items")

@@ -17,12 +17,13 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.kept_rows import RowNaming, row_naming
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.sample_design import check_design, design_columns
 from cfa_tool.data.summary_stats import NotGiven
 from cfa_tool.errors import DataError, EstimationError, OptionError, printable
 from cfa_tool.numerics.plain import csv_cell
-from cfa_tool.options import Option, group_column
+from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
 from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
@@ -294,12 +295,6 @@ class ScoreResult(Presentable):
         return self.summary()
 
 
-#: the keywords of :func:`scores` besides the fit options (an unknown keyword's near names)
-SCORES_KEYWORDS = ("model", "data", "methods", "standard_errors", "id_column", "group", "reference_group", "sheet",
-                   "names_row", "missing_codes", "keep", "ordinal", "ordinal_estimator", "weights", "cluster",
-                   "strata", "weight_kind")
-
-
 def scores(model, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
            group: str | None = None, reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
            missing_codes=(), keep=(), ordinal=None, ordinal_estimator: str | None = None, weights: str | None = None,
@@ -434,6 +429,11 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                        warnings=tuple(centred_in_each_group(result.estimates) + own))
 
 
+#: the keywords of :func:`scores` besides the fit options it passes on (an unknown keyword's near names,
+#: make_options), read from its signature once
+SCORES_KEYWORDS = own_keywords(scores)
+
+
 def models_of_fit(result: FitResult) -> tuple[list, list]:
     """Each group's scoring model from a fit result alone (its model text and estimates), for scoring other
     data with the parameters of this fit.  A fit without a mean structure (one group, complete rows) takes
@@ -552,7 +552,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     errors = {meth: np.full((n, m), np.nan) for meth in chosen}
     position = pd.Series(np.arange(n), index=read_frame.index)
     if ordinal:
-        _check_categories(models[0], rows, row_numbers(frame), source)
+        _check_categories(models[0], rows, row_numbers(frame), source, row_naming(frame))
     counts: dict = {}
     for model_g, label in zip(models, labels):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(frame))
@@ -616,10 +616,11 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                        unscored, with_errors, tuple(notes), source, tuple(warnings))
 
 
-def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str) -> None:
+def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str,
+                      naming: RowNaming = RowNaming.FILE_ROW) -> None:
     """Every answer to an ordinal item must be one of the categories the earlier fit estimated thresholds for: an
     error naming the item, the row and the value otherwise (``data_rows``: each row's number in the file,
-    data.moments.row_numbers)."""
+    data.moments.row_numbers, named as ``naming`` says)."""
     for j, cats in enumerate(model.categories):
         if not cats:
             continue
@@ -628,7 +629,7 @@ def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: st
         if unknown.any():
             k = int(np.flatnonzero(unknown)[0])
             raise DataError(f"{source}: ordinal item '{printable(model.base.items[j])}' has the answer {column[k]:g} in "
-                            f"row {int(data_rows[k])}, which is not one of the categories the earlier fit "
+                            f"{naming.one_row(int(data_rows[k]))}, which is not one of the categories the earlier fit "
                             f"estimated thresholds for ({', '.join(f'{v:g}' for v in cats)}); recode it or leave it out")
 
 

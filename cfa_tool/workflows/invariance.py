@@ -18,6 +18,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.answer_words import coding_json
+from cfa_tool.options import own_keywords
 from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_category_notes,
                                       make_options, moments_for, data_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
@@ -248,12 +249,6 @@ class InvarianceResult(Presentable):
         }
 
 
-#: the keywords of :func:`invariance` besides the fit options (an unknown keyword's near names)
-INVARIANCE_KEYWORDS = ("model", "data", "group", "reference_group", "partial", "alpha", "sheet", "names_row",
-                       "missing_codes", "keep", "ordinal", "ordinal_estimator", "decide_by", "weights", "cluster",
-                       "strata", "weight_kind", "progress")
-
-
 def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
                reference_group: str | None = None, partial: str = "none", alpha: float | None = None,
                sheet: str | None = None, names_row: int | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
@@ -453,6 +448,11 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     small = tuple(f"Group {p.group}: {p.line()}" for p in steps[0].result.problems if p.kind is ProblemKind.SMALL_GROUP)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + small + tuple(warnings), rule,
                             differences, latent_note, not_estimated, tuple(notes), found)
+
+
+#: the keywords of :func:`invariance` besides the fit options it passes on (an unknown keyword's near names,
+#: make_options), read from its signature once
+INVARIANCE_KEYWORDS = own_keywords(invariance)
 
 
 def _rows_left_out(configural: FitResult) -> tuple[list[str], list[str]]:

@@ -63,8 +63,10 @@ from cfa_tool.assessment.fit_indices import chi_square_p
 from cfa_tool.data.answer_words import code_answer_words, coding_json, coding_record
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.readers import sheet_of_each
+from cfa_tool.data.kept_rows import row_naming
 from cfa_tool.data.moments import SampleMoments, row_numbers, sample_moments
 from cfa_tool import options as check
+from cfa_tool.options import Option, own_keywords
 from cfa_tool.errors import DataError, EstimationError, OptionError, estimation_of, printable
 from cfa_tool.numerics.linalg import log_det_pd
 from cfa_tool.pipeline.continuous import FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, fit_moments, listwise_problem
@@ -412,7 +414,7 @@ def _same_categories(calibration, validation, frame: pd.DataFrame) -> None:
         first = int(row_numbers(frame)[np.argmax(where)])
         raise DataError(f"{validation.source}: ordinal item '{printable(name)}' has the answer"
                         f"{'s' if len(new) > 1 else ''} {', '.join(f'{c:g}' for c in new)} ({int(where.sum())} rows, the "
-                        f"first in row {first}), which the calibration sample {calibration.source} never had (its "
+                        f"first in {row_naming(frame).one_row(first)}), which the calibration sample {calibration.source} never had (its "
                         f"categories: {', '.join(f'{c:g}' for c in seen)}); the two samples' answer scales differ, so "
                         f"the calibration estimates cannot be carried over: recode the answers alike in both files or "
                         f"leave those rows out")
@@ -466,21 +468,16 @@ def _one_file_instead() -> str:
 SHARED_ROWS = 0.2
 
 
-#: the keywords of :func:`replicate` and :func:`split_half` besides the fit options (an unknown keyword's near names)
-REPLICATE_KEYWORDS = ("model", "calibration", "validation", "ordinal", "ordinal_estimator", "missing", "sheet",
-                      "missing_codes", "names_row")
-SPLIT_HALF_KEYWORDS = ("model", "data", "seed", "ordinal", "ordinal_estimator", "missing", "sheet", "missing_codes",
-                       "names_row")
-
-
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
               sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
-              **options) -> Replication:
+              validation_names_row: int | None = None, **options) -> Replication:
     """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
     their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too);
     ``missing_codes`` apply to both files, as for ``fit``; ``sheet`` to those of the two that are Excel workbooks
-    (a calibration workbook with a CSV validation file), an error when neither is one."""
+    (a calibration workbook with a CSV validation file), an error when neither is one.  The row of column names is
+    each file's own: ``names_row`` that of the calibration file, ``validation_names_row`` that of the validation
+    file (a workbook with question texts above the item codes beside a plain CSV file)."""
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
@@ -491,9 +488,10 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                           f"new data ({_one_file_instead()})")
     sheets = sheet_of_each((calibration, validation), sheet)
     read = [load_data_for(spec, calibration, sheets[0], missing_codes, names_row=names_row),
-            load_data_for(spec, validation, sheets[1], missing_codes, names_row=names_row)]
+            load_data_for(spec, validation, sheets[1], missing_codes, names_row=validation_names_row,
+                          names_option=Option.VALIDATION_NAMES_ROW)]
     for loaded in read:
-        check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
+        check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source, loaded.column_hint())
     read, notes = zip(*(_words_coded(spec, loaded, missing_codes) for loaded in read))
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
@@ -514,6 +512,11 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     return replace(result, data_problems=tuple(dict.fromkeys(p for s in screens for p in data_problems(s, spec))) + left_out,
                    notes=tuple(dict.fromkeys(n for file_notes in notes for n in file_notes)),
                    answer_coding=coding_record(spec))
+
+
+#: the keywords of :func:`replicate` besides the fit options it passes on (an unknown keyword's near names,
+#: make_options), read from its signature once
+REPLICATE_KEYWORDS = own_keywords(replicate)
 
 
 def _left_out(dropped: int, read: int, source: str, missing, ordinal_items) -> tuple:
@@ -547,7 +550,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                                                      options if missing is None else {**options, "missing": missing},
                                                      SPLIT_HALF_KEYWORDS)
     loaded = load_data_for(spec, data, sheet, missing_codes, names_row=names_row)
-    check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source)
+    check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source, loaded.column_hint())
     loaded, notes = _words_coded(spec, loaded, missing_codes)
     frame, source = loaded.frame, loaded.source
     screen = screened(frame, spec.observed_names, source, loaded.non_answers, loaded.cautions)
@@ -563,6 +566,11 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                  for rep in pair)
 
 
+#: the keywords of :func:`split_half` besides the fit options it passes on (an unknown keyword's near names,
+#: make_options), read from its signature once
+SPLIT_HALF_KEYWORDS = own_keywords(split_half)
+
+
 @dataclass(frozen=True)
 class SplitRows:
     """Which rows of one file were split into random halves: ``split`` of ``in_file``; ``complete_only``: rows with
@@ -571,7 +579,8 @@ class SplitRows:
     split: int
     in_file: int
     complete_only: bool
-    #: the row numbers (as the file numbers them, data.moments.row_numbers) of half A and of half B
+    #: the row numbers (as the file numbers them, a data frame's index labels: data.moments.row_numbers) of half A and
+    #: of half B
     half_a: tuple[int, ...] = field(default=(), repr=False)
     half_b: tuple[int, ...] = field(default=(), repr=False)
 

@@ -78,11 +78,11 @@ def test_case_shares_add_up_to_the_chi_square(hs_data, hs_three):
     assert np.mean([c.mahalanobis for c in influential]) == pytest.approx(9.0, rel=1e-9)
 
 
-def test_case_rows_are_numbered_as_in_the_file(hs_data):
+def test_case_rows_of_a_frame_are_named_by_its_index_labels(hs_data):
     data = hs_data.reset_index(drop=True).copy()
-    data.loc[10, "x1"] = 40.0  # an absurd score in row 11
+    data.loc[10, "x1"] = 40.0  # an absurd score at index label 10 (pandas' own label of the row)
     result = cfa_tool.fit(THREE_FACTORS, data)
-    assert result.groups[0].unusual_cases[0].row == 11
+    assert result.groups[0].unusual_cases[0].row == 10
 
 
 def test_normalized_residuals(hs_three):
@@ -236,7 +236,7 @@ def _with_gaps(hs_data):
     data = hs_data.reset_index(drop=True)[[f"x{i}" for i in range(1, 10)]].copy()
     rng = np.random.default_rng(8)  # a fixed seed: about 8% of the answers left out
     data = data.mask(rng.random(data.shape) < 0.08)
-    data.loc[10, ["x1", "x2", "x3", "x4"]] = [9.5, 9.0, 4.5, 0.2]  # row 11: far from the others, one gap
+    data.loc[10, ["x1", "x2", "x3", "x4"]] = [9.5, 9.0, 4.5, 0.2]  # index label 10: far from the others, one gap
     data.loc[10, "x9"] = np.nan
     return data
 
@@ -276,17 +276,18 @@ def test_rows_with_gaps_are_measured_on_the_items_they_answered(hs_data):
         assert c.model_mahalanobis == pytest.approx(model_distance[k], rel=1e-8)
         assert c.p_value == pytest.approx(p[k], rel=1e-6, abs=1e-300)
         assert c.answered == int((~np.isnan(rows[k])).sum())
-    # the fit's own table: the largest shares first, and the outlying row (row 11) the least likely one
-    assert [c.row for c in g.influential_cases[:3]] == [int(k) + 1 for k in np.argsort(share)[::-1][:3]]
-    assert g.unusual_cases[0].row == 11 == int(np.argmin(p)) + 1
+    # the fit's own table (rows named by the frame's index labels, here 0, 1, ...): the largest shares first, and
+    # the outlying row (index label 10) the least likely one
+    assert [c.row for c in g.influential_cases[:3]] == [int(k) for k in np.argsort(share)[::-1][:3]]
+    assert g.unusual_cases[0].row == 10 == int(np.argmin(p))
     assert g.unusual_cases[0].answered == 8
 
 
 def test_rows_with_gaps_keep_their_data_row_numbers_after_a_filter(hs_data):
     data = _with_gaps(hs_data)
     data.insert(0, "keep", "yes")
-    data.loc[:5, "keep"] = "no"  # rows 1 to 6 left out
+    data.loc[:5, "keep"] = "no"  # index labels 0 to 5 left out
     result = cfa_tool.fit(THREE_FACTORS, data, keep=["keep = yes"])
     assert result.method.full_information
-    assert result.groups[0].unusual_cases[0].row == 11
-    assert min(c.row for c in result.groups[0].influential_cases) > 6
+    assert result.groups[0].unusual_cases[0].row == 10
+    assert min(c.row for c in result.groups[0].influential_cases) > 5

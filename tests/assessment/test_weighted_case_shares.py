@@ -44,7 +44,7 @@ def test_frequency_weighted_shares_sum_to_the_chi_square(weighted):
     direct = _direct_shares(data, np.asarray(group.implied_covariance))
     assert direct.sum() == pytest.approx(result.fit.chi_square, rel=1e-9)
     top = np.argsort(-direct, kind="stable")[:len(group.influential_cases)]
-    assert [c.row for c in group.influential_cases] == (top + 1).tolist()
+    assert [c.row for c in group.influential_cases] == top.tolist()  # the frame's index labels 0, 1, ...
     assert [c.chi_square_share for c in group.influential_cases] == pytest.approx(direct[top].tolist(), rel=1e-8)
     from cfa_tool.reporting.tables import case_table
 
@@ -56,7 +56,7 @@ def test_frequency_weighted_shares_sum_to_the_chi_square(weighted):
     repeated = data.loc[data.index.repeat(data["w"].astype(int)), ITEMS].reset_index(drop=True)
     plain = cfa_tool.fit(THREE_FACTORS, repeated)
     assert plain.fit.chi_square == pytest.approx(result.fit.chi_square, rel=1e-8)
-    first_copy = int(np.flatnonzero(data.index.repeat(data["w"].astype(int)) == top[0])[0]) + 1
+    first_copy = int(np.flatnonzero(data.index.repeat(data["w"].astype(int)) == top[0])[0])
     copy = next(c for c in plain.groups[0].influential_cases if c.row == first_copy)
     assert copy.chi_square_share * data["w"].iloc[top[0]] == pytest.approx(direct[top[0]], rel=1e-7)
 

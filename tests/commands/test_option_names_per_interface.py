@@ -148,7 +148,8 @@ def test_every_declared_option_is_an_option_of_the_command_line_and_a_keyword_of
 
 
 def test_the_public_functions_declare_their_own_keywords():
-    # make_options names near keywords of the function called from these declarations (no frame inspection)
+    # make_options names near keywords of the function called from these declarations (no frame inspection); each
+    # is read from its function's signature once, at import (options.own_keywords), not copied by hand
     from cfa_tool.pipeline.inputs import FIT_KEYWORDS
     from cfa_tool.workflows.compare import COMPARE_KEYWORDS
     from cfa_tool.workflows.factor_scores import SCORES_KEYWORDS
@@ -160,6 +161,7 @@ def test_the_public_functions_declare_their_own_keywords():
                                (cfa_tool.replicate, REPLICATE_KEYWORDS), (cfa_tool.split_half, SPLIT_HALF_KEYWORDS)):
         own = tuple(name for name, p in inspect.signature(function).parameters.items() if p.kind is not p.VAR_KEYWORD)
         assert declared == own, function.__name__
+        assert f"= own_keywords({function.__name__})" in inspect.getsource(inspect.getmodule(function))
     import cfa_tool.pipeline.inputs as inputs
 
     assert "inspect" not in inspect.getsource(inputs.make_options)

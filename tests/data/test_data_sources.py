@@ -618,3 +618,17 @@ def test_cells_written_as_a_marker_of_no_answer_are_said(tmp_path):
     plain = tmp_path / "plain.csv"
     plain.write_text("a,b\n1,2.5\n,3\n")
     assert not any("read as no answer" in n for n in read_data(plain).notes)
+
+
+def test_lines_are_counted_as_the_split_text_counts_them():
+    """--names-row checks its line against the file's line count, counted without splitting the whole text
+    (input_files.line_count); the reference is the split of the normalised text, every string of up to five pieces."""
+    import itertools
+
+    from cfa_tool.input_files import line_count, normalise_line_ends, text_lines
+
+    pieces = ["a", "\n", "\r", "\r\n", ""]
+    for n in range(6):
+        for combo in itertools.product(pieces, repeat=n):
+            text = "".join(combo)
+            assert line_count(text) == len(text_lines(normalise_line_ends(text))), repr(text)

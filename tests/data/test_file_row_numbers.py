@@ -235,3 +235,51 @@ def test_rows_that_answer_nothing_are_named_by_their_ids_whatever_the_frame_inde
     result = cfa_tool.fit(rider_model, frame, id_column="rider_id")
     note = next(w for w in result.warnings if "answered none of the model variables" in w)
     assert f"rows 4 ('{ids[0]}'), 8 ('{ids[1]}')" in note
+
+
+def _texts_above_codes(frame: pd.DataFrame, path) -> None:
+    """A workbook whose row 1 holds question texts and row 2 the item codes, as survey platforms export it."""
+    book = openpyxl.Workbook()
+    sheet = book.active
+    sheet.append([f"How much do you agree: {c}?" for c in frame.columns])
+    sheet.append(list(frame.columns))
+    for row in frame.itertuples(index=False):
+        sheet.append(list(row))
+    book.save(path)
+
+
+def test_replicate_reads_each_files_row_of_column_names(rider_demo, rider_model, tmp_path, capsys):
+    """--names-row gives the calibration file's row of column names and --validation-names-row the validation
+    file's: a workbook with question texts above the item codes beside a plain CSV file (--names-row was applied to
+    both files, and the CSV failed on a duplicate column name without a word of the option)."""
+    model = tmp_path / "riders.cfa"
+    model.write_text(rider_model)
+    workbook, plain = tmp_path / "calibration.xlsx", tmp_path / "validation.csv"
+    _texts_above_codes(rider_demo.iloc[:240], workbook)
+    rider_demo.iloc[240:].to_csv(plain, index=False)
+    texts_csv = tmp_path / "validation_texts.csv"
+    texts_csv.write_text(",".join(f"Question {k}" for k in range(len(rider_demo.columns))) + "\n"
+                         + rider_demo.iloc[240:].to_csv(index=False))
+    reference = cfa_tool.replicate(rider_model, rider_demo.iloc[:240], rider_demo.iloc[240:])
+    for validation, extra in ((plain, []), (texts_csv, ["--validation-names-row", "2"])):
+        assert main(["replicate", str(model), "--calibration", str(workbook), "--validation", str(validation),
+                     "--names-row", "2", *extra, "--json", str(tmp_path / "out.json")]) == 0
+        capsys.readouterr()
+        saved = json.loads((tmp_path / "out.json").read_text())["replications"][0]
+        assert saved["calibration"]["fit"]["chi_square"] == pytest.approx(reference.calibration_result.fit.chi_square,
+                                                                          rel=1e-10)
+    # a wrong row of names: the error names the file and the option that named the row
+    assert main(["replicate", str(model), "--calibration", str(workbook), "--validation", str(plain),
+                 "--names-row", "2", "--validation-names-row", "2"]) == 2
+    err = capsys.readouterr().err
+    assert "validation.csv" in err and "(the row named by --validation-names-row 2)" in err and len(err.splitlines()) == 1
+    # the names under question texts in the validation file: its own option is suggested
+    assert main(["replicate", str(model), "--calibration", str(workbook), "--validation", str(texts_csv),
+                 "--names-row", "2"]) == 2
+    err = capsys.readouterr().err
+    assert "validation_texts.csv: row 2 holds the model's variable names" in err and "--validation-names-row 2" in err
+    # the Python call names the keywords; the option cannot apply to split halves
+    with pytest.raises(DataError, match=r"the row named by validation_names_row=3\)|validation_names_row=3 asks"):
+        cfa_tool.replicate(rider_model, str(workbook), str(texts_csv), names_row=2, validation_names_row=3)
+    assert main(["replicate", str(model), "--data", str(plain), "--validation-names-row", "2"]) == 2
+    assert "no --validation file is given" in capsys.readouterr().err

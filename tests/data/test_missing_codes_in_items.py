@@ -36,7 +36,7 @@ def test_a_group_column_keeps_a_value_given_as_a_missing_code(answers, tmp_path)
         notes = " ".join(fitted.warnings)
         assert "3 cells holding a code given with --missing-codes (9) were read as no answer (a2 3)" in notes
         assert ("--missing-codes applies to the model's items; other columns keep such a value as it is ('grade' "
-                "holds 9 in 100 rows)") in notes and "--keep \"grade != 9\"" in notes
+                "holds 9 in 100 rows)") in notes and "keep=['grade != 9']" in notes  # as a Python call writes it
     # the same fit as the data with those three cells empty (written by pandas), the grade column as it is
     gaps = answers.assign(a2=answers["a2"].replace(9.0, np.nan))
     reference = cfa_tool.fit(MODEL, gaps, group="grade")
@@ -57,4 +57,20 @@ def test_the_note_suggests_a_row_filter_only_when_none_given_leaves_those_rows_o
     for data in (path, answers.drop(columns="b3")):
         notes = " ".join(cfa_tool.fit(model, data, missing_codes=[9], keep=list(keep)).warnings)
         assert "other columns keep such a value as it is ('grade' holds 9 in 100 rows)" in notes
-        assert ("to leave those rows out, give a row filter such as --keep \"grade != 9\"" in notes) is suggested
+        # a Python caller reads the keyword it writes (Option.KEEP.given)
+        assert ("to leave those rows out, give a row filter such as keep=['grade != 9']" in notes) is suggested
+
+
+def test_the_suggested_row_filter_is_written_as_the_caller_writes_options(answers, tmp_path, capsys):
+    """The row filter a note suggests is written through Option.KEEP: '--keep "grade != 9"' on the command line,
+    keep=['grade != 9'] in Python (a Python caller read the flag)."""
+    from cfa_tool.cli import main
+
+    path, model = tmp_path / "grades.csv", tmp_path / "grades.cfa"
+    answers.to_csv(path, index=False)
+    model.write_text(MODEL)
+    assert main(["check", str(model), "--data", str(path), "--group-column", "grade", "--missing-codes", "9"]) == 0
+    said = capsys.readouterr().out
+    assert 'give a row filter such as --keep "grade != 9"' in " ".join(said.split())
+    notes = " ".join(cfa_tool.check(MODEL, path, group="grade", missing_codes=[9]).notes)
+    assert "give a row filter such as keep=['grade != 9']" in notes and "--keep" not in notes

@@ -47,8 +47,8 @@ def test_a_group_named_like_no_answer_keeps_its_rows_and_is_named(tmp_path, answ
     said = [n for n in checked.notes if "read like no answer" in n]
     assert said == ["in the group column 'line', 'Not applicable' (100 rows) and 'Unsure' (100 rows) read like no "
                     "answer, yet were kept as groups of their own (words that say no answer are read as missing in "
-                    "item columns only); if such rows have no group, leave them out with a row filter such as --keep "
-                    "\"line != 'Not applicable'\""]
+                    "item columns only); if such rows have no group, leave them out with a row filter such as "
+                    "keep=[\"line != 'Not applicable'\"]"]
     fitted = cfa_tool.fit(MODEL, path, group="line")
     assert [g.label for g in fitted.groups] == list(checked.groups) and fitted.n_obs == len(data)
     assert any("read like no answer" in w for w in fitted.warnings)
@@ -98,8 +98,8 @@ def test_a_filter_column_keeps_its_words_and_the_error_names_the_filter_that_lea
     data.loc[:9, "age"] = "Prefer not to say"
     path = tmp_path / "riders.csv"
     data.to_csv(path, index=False)
-    with pytest.raises(UserInputError, match="or leave its rows out first with --keep \"age != 'Prefer not "
-                                                        "to say'\""):
+    with pytest.raises(UserInputError, match="or leave its rows out first with keep=\\[\"age != 'Prefer not "
+                                                        "to say'\"\\]"):
         cfa_tool.check(MODEL, path, keep=["age >= 18"])
     checked = cfa_tool.check(MODEL, path, keep=["age != 'Prefer not to say'", "age >= 18"])
     ages = pd.to_numeric(data["age"], errors="coerce")

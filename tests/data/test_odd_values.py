@@ -175,10 +175,10 @@ def test_a_means_row_that_stops_an_ordinal_fit_is_named_as_one_first():
     rng = np.random.default_rng(3)
     latent = rng.normal(size=(200, 1)) @ np.full((1, 6), 0.7) + rng.normal(scale=0.7, size=(200, 6))
     frame = pd.DataFrame(np.digitize(latent, [-1.0, -0.3, 0.3, 1.0]) + 1.0, columns=[f"q{i}" for i in range(1, 7)])
-    frame.loc[len(frame)] = frame.mean().round(2)  # row 201: the means of the rows above
+    frame.loc[len(frame)] = frame.mean().round(2)  # index label 200: the means of the rows above
     with pytest.raises(DataError) as found:
         cfa_tool.fit("factor f: q1..q6\n", frame, ordinal="all")
     message = str(found.value)
-    assert message.startswith("Row 201 of <data frame> holds the means of the other rows' answers")
-    assert "leave it out with a --keep filter" in message
-    assert message.index("What to try first") < message.index("has the answer") < message.index("in row 201")
+    assert message.startswith("Index label 200 of <data frame> holds the means of the other rows' answers")
+    assert "leave it out with a row filter, keep=..." in message  # a Python caller reads the Python keyword
+    assert message.index("What to try first") < message.index("has the answer") < message.index("in index label 200")

@@ -1,7 +1,8 @@
 """A row that looks like a spreadsheet's means row, or a value that looks like a missing-value code (data.odd_values),
 is analysed as the file holds it (the run warns first but does not refuse): the methods paragraph of fit, compare and
 invariance says which and that it was analysed, since a reviewer needs it to judge the N and the estimates.  The
-means row is computed here with pandas from Holzinger & Swineford (1939) and appended as row 302."""
+means row is computed here with pandas from Holzinger & Swineford (1939) and appended at index label 301 (the 302nd
+row of a frame indexed from 0), by which a data frame's row is named."""
 
 from __future__ import annotations
 
@@ -13,7 +14,7 @@ from cfa_tool.reporting.paragraph import comparison_paragraph, invariance_paragr
 from cfa_tool.workflows.invariance import LEVELS
 from tests.conftest import THREE_FACTORS, holzinger_swineford
 
-MEANS_ROW = ("row 302, whose values equal the means of the other rows' answers in every item column it answers "
+MEANS_ROW = ("index label 301, whose values equal the means of the other rows' answers in every item column it answers "
              "(9): perhaps a means row; this was analysed as answers, as the file holds it")
 
 
