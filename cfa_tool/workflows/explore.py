@@ -729,12 +729,12 @@ def _correlations(frame, names, source, ordinal_items, notes):
 def _empty_rows_note(frame: pd.DataFrame, empty: np.ndarray) -> str:
     """The note on the rows (``empty``: a mask of ``frame``'s rows) that answered none of the items, named as the
     file numbers them (data.kept_rows.rows_listed), as fit names them."""
-    from cfa_tool.data.kept_rows import rows_listed
+    from cfa_tool.data.kept_rows import row_naming, rows_listed
     from cfa_tool.data.moments import row_numbers
 
     n = int(empty.sum())
     return (f"{n} of {len(frame)} {'row' if len(frame) == 1 else 'rows'} answered none of the items and "
-            f"{'was' if n == 1 else 'were'} left out ({rows_listed(row_numbers(frame)[empty])}).")
+            f"{'was' if n == 1 else 'were'} left out ({rows_listed(row_numbers(frame)[empty], naming=row_naming(frame))}).")
 
 
 def _confirm(exploration: Exploration, halves, seed: int, source: str, statements: tuple[str, ...]) -> SplitHalves:
