@@ -1244,7 +1244,7 @@ def replication_paragraph(replications) -> str:
     first = reps[0]
     result = first.calibration_result
     d = result.description
-    model = (f"a confirmatory factor analysis with {_structure(result, d).rstrip(',')}" if d is not None else
+    model = (f"a confirmatory factor analysis with {_structure(d, _shape(result, d)).rstrip(',')}" if d is not None else
              f"a confirmatory factor analysis of {_count(len(result.observed), 'indicator')}")
     estimator = _estimator_phrase(result)
     other = _estimator_phrase(first.loose)
