@@ -77,12 +77,26 @@ def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarra
     share = log_det_sigma - whitened.log_det + d_model - d_sample
     if frequencies is not None:
         share = share * frequencies
-    chosen = np.concatenate([np.argsort(-d_sample, kind="stable")[:top], np.argsort(-share, kind="stable")[:top]])
+    chosen = np.concatenate([largest_first(d_sample, top), largest_first(share, top)])
     numbers = (chosen + 1 if row_numbers is None else row_numbers[chosen]).tolist()
     found = [CaseDiagnostic(*values) for values in zip(numbers, d_sample[chosen].tolist(),
                                                        dist.chi2_sf(d_sample[chosen], p).tolist(), share[chosen].tolist())]
     shown = len(found) // 2  # the rows shown: p-values only for them
     return found[:shown], found[shown:]
+
+
+def largest_first(values: np.ndarray, top: int) -> np.ndarray:
+    """The positions of the ``top`` largest of ``values``, largest first, ties in the order of their positions and NaN
+    last: ``np.argsort(-values, kind="stable")[:top]``, without sorting all the rows (a partial sort finds the
+    ``top``-th largest; only the values at least as large are sorted)."""
+    negative = -values
+    if len(negative) <= 4 * top:
+        return np.argsort(negative, kind="stable")[:top]
+    limit = np.partition(negative, top - 1)[top - 1]  # the top-th smallest of -values (NaN last, as in the sort)
+    if np.isnan(limit):  # fewer than ``top`` numbers: the sort's order of the NaN
+        return np.argsort(negative, kind="stable")[:top]
+    among = np.flatnonzero(negative <= limit)  # every value as large as the top-th, ties included, by position
+    return among[np.argsort(negative[among], kind="stable")][:top]
 
 
 def _answered_distances(rows: np.ndarray, patterns: tuple[np.ndarray, np.ndarray], mean: np.ndarray,

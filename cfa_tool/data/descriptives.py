@@ -93,8 +93,11 @@ def nearly_constant_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[N
     answered = np.isfinite(values).sum(axis=0)
     limits = np.maximum(NEARLY_CONSTANT_ROWS, NEARLY_CONSTANT_SHARE * answered)
     # an answer held by all rows but fewer than the limit holds more than half of them when the limit is below half,
-    # so it is the middle answer: only such items (and those of so few rows that the limit reaches half) are counted
-    middle = (np.sort(values, axis=0)[answered // 2, np.arange(values.shape[1])]  # gaps (NaN) sort last
+    # so it is the middle answer: only such items (and those of so few rows that the limit reaches half) are counted.
+    # The middle answers by a partial sort (each column's answer at its middle place found, the columns not sorted
+    # through: the same values as a sort gives there; gaps, NaN, go last in both)
+    half = answered // 2
+    middle = (np.partition(values, np.unique(half), axis=0)[half, np.arange(values.shape[1])]
               if values.size else np.zeros(values.shape[1]))
     others = answered - (values == middle).sum(axis=0)
     candidates = (answered > 0) & ((others < limits) | (limits >= answered / 2))

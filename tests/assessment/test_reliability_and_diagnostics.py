@@ -291,3 +291,21 @@ def test_rows_with_gaps_keep_their_data_row_numbers_after_a_filter(hs_data):
     assert result.method.full_information
     assert result.groups[0].unusual_cases[0].row == 10
     assert min(c.row for c in result.groups[0].influential_cases) > 5
+
+
+
+def test_the_rows_shown_are_those_a_full_sort_puts_first():
+    """The case diagnostics show the rows of the largest distances and shares, largest first, ties in the rows' order
+    and NaN last: a partial sort (assessment.diagnostics.largest_first) must pick what numpy's stable sort of every
+    row picks, on random values with many ties, NaN and infinities, for few and many rows."""
+    from cfa_tool.assessment.diagnostics import largest_first
+
+    rng = np.random.default_rng(20261203)
+    for draw in range(800):
+        n = int(rng.integers(0, 60) if draw % 4 else rng.integers(60, 3000))
+        values = rng.integers(0, int(rng.integers(1, 50)), n).astype(float) if draw % 2 else rng.normal(size=n)
+        values[rng.random(n) < rng.choice([0.0, 0.02, 0.9])] = np.nan
+        values[rng.random(n) < 0.01] = rng.choice([np.inf, -np.inf, -0.0])
+        top = int(rng.integers(0, 15))
+        expected = np.argsort(-values, kind="stable")[:top]
+        assert np.array_equal(largest_first(values, top), expected)

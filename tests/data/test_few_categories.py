@@ -172,7 +172,8 @@ def test_whole_numbers_are_looked_for_only_among_items_of_a_narrow_range():
 def test_the_screen_of_nearly_constant_items_finds_what_counting_every_column_finds():
     """nearly_constant_items looks only at items whose median is held by all rows but a few (speed): the result
     must be that of counting every column's answers with numpy.unique, the rule as written, on random columns of
-    every size (tiny samples, whose limit reaches half the rows, included)."""
+    every size (tiny samples, whose limit reaches half the rows, included, and samples of hundreds to thousands of rows
+    with gaps, whose columns' middle places differ)."""
     from cfa_tool.data.descriptives import NearlyConstant, nearly_constant_items, rare_answer_limit
 
     def counted(values, names):
@@ -188,8 +189,8 @@ def test_the_screen_of_nearly_constant_items_finds_what_counting_every_column_fi
 
     rng = np.random.default_rng(20261203)
     seen = 0
-    for _ in range(600):
-        n, p = int(rng.integers(1, 40)), int(rng.integers(1, 6))
+    for draw in range(600):  # every tenth draw a questionnaire's thousand rows or so (the middle answer by a partial sort)
+        n, p = int(rng.integers(1, 40) if draw % 10 else rng.integers(200, 2000)), int(rng.integers(1, 6))
         values = rng.integers(1, 4, (n, p)).astype(float)
         for j in range(p):
             if rng.random() < 0.5:

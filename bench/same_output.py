@@ -1,0 +1,97 @@
+"""Is the default call's output the same on two versions of the code?  A check for speed work.
+
+    python bench/same_output.py --write /tmp/before.pickle            # on the old code (PYTHONPATH=<old tree>)
+    python bench/same_output.py --write /tmp/after.pickle             # on the new code
+    python bench/same_output.py --compare /tmp/before.pickle /tmp/after.pickle
+
+Fits the cases of bench/default_call.py (Holzinger-Swineford with every column, 30, 60 and 120 simulated
+items) plus a model with groups, one with gaps in the data (full-information estimation) and one of ordinal
+items, and keeps ``fit(...).to_dict()`` of each.  The comparison is exact: the same keys in the same order,
+the same types, the same numbers to the last bit (NaN equal to NaN), the same text.  A change made for
+speed must leave every one of them as it was.
+"""
+
+from __future__ import annotations
+
+import argparse
+import math
+import pickle
+import sys
+import warnings
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT / "bench"))
+
+from run import simulated  # noqa: E402
+
+HS_MODEL = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+
+
+def cases() -> dict[str, dict]:
+    import cfa_tool
+    from semopy.examples import holzinger39
+
+    warnings.filterwarnings("ignore")
+    hs = holzinger39.get_data()
+    out = {"Holzinger-Swineford, every column": cfa_tool.fit(HS_MODEL, hs).to_dict()}
+    for items in (30, 60, 120):
+        text, _, data = simulated(items, items // 10, 1000, items)
+        out[f"simulated, {items} items"] = cfa_tool.fit(text, data).to_dict()
+    out["Holzinger-Swineford, two schools"] = cfa_tool.fit(HS_MODEL, hs, group="school").to_dict()
+    gaps = hs.copy()
+    rng = np.random.default_rng(11)
+    for column in [f"x{i}" for i in range(1, 10)]:
+        gaps.loc[rng.random(len(gaps)) < 0.08, column] = np.nan
+    out["Holzinger-Swineford, gaps, full-information"] = cfa_tool.fit(HS_MODEL, gaps, missing="full-information").to_dict()
+    rider = pd.read_csv(ROOT / "demo" / "rider_survey.csv")
+    model = (ROOT / "models" / "rider_three_factors.cfa").read_text()
+    out["rider survey, ordinal"] = cfa_tool.fit(model, rider, ordinal="all").to_dict()
+    out["rider survey, continuous"] = cfa_tool.fit(model, rider).to_dict()
+    return out
+
+
+def differences(a, b, where: str = "") -> list[str]:
+    """Every place where two to_dict() outputs differ (exactly: type, key order, bits)."""
+    if type(a) is not type(b):
+        return [f"{where}: type {type(a).__name__} against {type(b).__name__}"]
+    if isinstance(a, dict):
+        if list(a) != list(b):
+            return [f"{where}: keys {list(a)} against {list(b)}"]
+        return [d for key in a for d in differences(a[key], b[key], f"{where}/{key}")]
+    if isinstance(a, (list, tuple)):
+        if len(a) != len(b):
+            return [f"{where}: length {len(a)} against {len(b)}"]
+        return [d for i, (x, y) in enumerate(zip(a, b)) for d in differences(x, y, f"{where}[{i}]")]
+    if isinstance(a, float):
+        same = (math.isnan(a) and math.isnan(b)) or (a == b and math.copysign(1, a) == math.copysign(1, b))
+        return [] if same else [f"{where}: {a!r} against {b!r}"]
+    if isinstance(a, np.ndarray):
+        return [] if a.dtype == b.dtype and np.array_equal(a, b, equal_nan=a.dtype.kind == "f") else [f"{where}: arrays differ"]
+    return [] if a == b else [f"{where}: {a!r} against {b!r}"]
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--write", type=Path)
+    parser.add_argument("--compare", type=Path, nargs=2)
+    args = parser.parse_args()
+    if args.write:
+        import cfa_tool
+
+        args.write.write_bytes(pickle.dumps(cases()))
+        print(f"{args.write}: the code in {Path(cfa_tool.__file__).parent}")
+    if args.compare:
+        before, after = (pickle.loads(p.read_bytes()) for p in args.compare)
+        found = differences(before, after)
+        for line in found[:40]:
+            print(line)
+        print(f"{len(before)} cases, {len(found)} differences")
+        raise SystemExit(1 if found else 0)
+
+
+if __name__ == "__main__":
+    main()
