@@ -338,7 +338,7 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
                          analysed=analysed), notes
 
 
-def pasted_matrix(frame, row_names, items, source: str) -> None:
+def pasted_matrix(frame: pd.DataFrame, row_names: pd.Series | None, items, source: str) -> None:
     """Raw data that are a correlation matrix pasted as printed in a paper (an empty first cell, rows named as the
     item columns, ones on the diagonal of that square block; rows of means and standard deviations after it): an
     error saying how to write it as summary statistics, rather than a fit of its rows as answers.  ``row_names``:
@@ -353,7 +353,7 @@ def pasted_matrix(frame, row_names, items, source: str) -> None:
         if not others:
             return
         row_names, corner = frame[others[0]], f"'{printable(str(others[0]))}'"
-    names = [str(x).strip() for x in row_names.tolist()]
+    names = [str(x).strip() for x in row_names.iloc[:len(items) + 10].tolist()]  # a pasted matrix starts the file
     where = {}
     for position, name in enumerate(names):
         where.setdefault(name, position)
