@@ -3,7 +3,7 @@
 Examples: ``district = north``, ``age >= 18``, ``"wave 2" != 1``,
 ``visit_date >= 2026-03-01``.  A filter is parsed, never evaluated as code.
 Operators: = != < <= > >= (text columns take only = and !=; date columns, and
-text written YYYY-MM-DD, compare as dates).
+text written YYYY-MM-DD, compare as dates; a date without a time of day means the whole day).
 """
 
 from __future__ import annotations
@@ -167,7 +167,8 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         numeric = pd.to_numeric(column, errors="coerce") if column.dtype.kind in "iuf" else \
             column.map(lambda v: np.nan if pd.isna(v) else _number_or_nan(v))
         if dates is not None:
-            values, target = dates, _date_target(f)
+            values, target, by_day = _dates_compared(f, dates)
+            by_label += by_day
         elif isinstance(f.value, float) and numeric.notna().sum() == column.notna().sum():
             values, target = numeric, f.value
         else:
@@ -247,6 +248,8 @@ def _cell_label(value) -> str:
 
 #: a date as ISO 8601 writes it (the one form whose order of year, month and day is certain), with a time or not
 _ISO_DATE = re.compile(r"\d{4}-\d{2}-\d{2}(?:[ T]\d{2}:\d{2}(?::\d{2}(?:\.\d+)?)?)?")
+#: a date without a time of day, which a filter reads as the whole day
+_DAY_ONLY = re.compile(r"\d{4}-\d{2}-\d{2}")
 #: a date in another form (14/03/2026, 3.14.26): day and month in an order the file does not say
 _OTHER_DATE = re.compile(r"\d{1,2}[/.-]\d{1,2}[/.-]\d{2,4}")
 
@@ -278,6 +281,21 @@ def _date_target(f: RowFilter) -> pd.Timestamp:
         pass
     raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds dates, which are compared with a "
                       f"date written as YYYY-MM-DD (such as '{f.column} >= 2026-03-01')")
+
+
+def _dates_compared(f: RowFilter, dates: pd.Series) -> tuple[pd.Series, pd.Timestamp, str]:
+    """The values of a date column and the date a filter compares them with, and words for its note: a date
+    written without a time of day means the whole day, so every operator compares it with the day of each value
+    ('visit <= 2026-04-01' keeps the visits at 08:30 on April 1, 'visit = 2026-04-01' every visit that day); the
+    note says so when the column holds times of day.  A date with a time compares with the values as they are."""
+    target = _date_target(f)
+    if not _DAY_ONLY.fullmatch(str(f.value).strip()):
+        return dates, target, ""
+    days = dates.dt.normalize()
+    timed = bool((days != dates)[dates.notna()].any())
+    words = (f" (compared with the day of each value, since '{printable(f.column)}' holds times of day and the filter "
+             f"gives a date without one)" if timed else "")
+    return days, target, words
 
 
 def _written_date(column: pd.Series) -> str | None:

@@ -28,6 +28,7 @@ from enum import Enum
 from pathlib import Path
 
 import numpy as np
+import pandas as pd
 
 from cfa_tool.data.moments import LARGEST_VALUE, SMALLEST_SPREAD, SampleMoments, _check_moments
 from cfa_tool import options as check
@@ -312,7 +313,11 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
             raise DataError(f"{where}: the correlation of '{printable(names[i])}' and '{printable(names[j])}' is "
                             f"{matrix[i, j]:g}, beyond +/-1; check it for a typing error")
         if not np.allclose(np.diag(matrix), 1.0, atol=1e-6):
-            raise DataError(f"{source}: a correlation matrix needs ones on its diagonal")
+            j = int(np.flatnonzero(~np.isclose(np.diag(matrix), 1.0, rtol=0.0, atol=1e-6))[0])
+            where = f"{source}:{row_lines[j]}" if row_lines is not None else f"{source} (row {j + 1} of the matrix)"
+            raise DataError(f"{where}: the diagonal cell of '{printable(names[j])}' is {matrix[j, j]:g}; a correlation "
+                            f"matrix needs ones on its diagonal (check it for a typing error, or declare the matrix a "
+                            f"covariance matrix if it holds variances)")
         if sds is not None:
             matrix = matrix * np.outer(sds, sds)
         else:
@@ -331,3 +336,37 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
                 if sds is not None else AnalysedMatrix.CORRELATION)
     return SampleMoments(tuple(names), matrix, mean, int(n_obs), int(n_obs), 0, source, not_given=not_given,
                          analysed=analysed), notes
+
+
+def pasted_matrix(frame: pd.DataFrame, row_names: pd.Series | None, items, source: str) -> None:
+    """Raw data that are a correlation matrix pasted as printed in a paper (an empty first cell, rows named as the
+    item columns, ones on the diagonal of that square block; rows of means and standard deviations after it): an
+    error saying how to write it as summary statistics, rather than a fit of its rows as answers.  ``row_names``:
+    the file's row-name column (readers.LoadedData.row_names) or None, when the first column of ``frame`` that is
+    not an item names the rows."""
+    items = [str(x) for x in items]
+    if len(items) < 2 or any(x not in frame.columns for x in items):
+        return
+    corner = "empty"
+    if row_names is None:
+        others = [c for c in frame.columns if str(c) not in items]
+        if not others:
+            return
+        row_names, corner = frame[others[0]], f"'{printable(str(others[0]))}'"
+    names = [str(x).strip() for x in row_names.iloc[:len(items) + 10].tolist()]  # a pasted matrix starts the file
+    where = {}
+    for position, name in enumerate(names):
+        where.setdefault(name, position)
+    if any(x not in where for x in items):
+        return
+    block = frame[items].iloc[[where[x] for x in items]].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
+    if not np.allclose(np.diag(block), 1.0, atol=1e-9, rtol=0.0):
+        return
+    others = [n for n in names if n not in items and n]
+    rename = (f"; after the matrix come only rows named {', '.join(EXTRA_ROWS)} (here "
+              f"{', '.join(repr(printable(n)) for n in others[:4])})" if others else "")
+    raise DataError(f"{source} looks like a correlation matrix, not rows of answers: its rows are named as its columns "
+                    f"('{printable(items[0])}' to '{printable(items[-1])}') with 1 on the diagonal; to fit it as "
+                    f"summary statistics write 'correlation' in its first cell (now {corner}) and add a row 'n' with "
+                    f"the number of observations after the matrix{rename} (the README's section on summary "
+                    f"statistics shows the layout)")

@@ -23,6 +23,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from cfa_tool.errors import OptionError
+from cfa_tool.version import check_written_version
 from cfa_tool.model.description import parameter_words
 from cfa_tool.model.parameters import ParameterTable
 
@@ -41,6 +42,8 @@ def saved_fit_payload(payload: object, source: str, marked: bool = True) -> dict
     if (not isinstance(payload, dict) or not isinstance(payload.get("estimates"), list)
             or marked and payload.get("tool") != "cfa-tool"):
         raise OptionError(f"{source} is not the JSON result of a fit by cfa-tool (fit --json)")
+    if payload.get("tool") == "cfa-tool":  # a file fit --json wrote (a fit result's to_dict() names no version)
+        check_written_version(payload, source)
     return payload
 
 

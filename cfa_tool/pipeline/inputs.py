@@ -26,7 +26,8 @@ from cfa_tool.data.readers import HiddenRows, LoadedData, blank_text_as_missing,
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
                                          refuse_shared_clusters)
-from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
+from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_matrix, read_summary_file,
+                                         summary_moments)
 from cfa_tool import options as opt
 from cfa_tool.options import Option, option_in_both, own_keywords
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, printable
@@ -179,6 +180,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     filters = [parse_filter(k) for k in keep]
     loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row)
     frame = loaded.frame
+    pasted_matrix(frame, loaded.row_names, spec.observed_names, loaded.source)
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
     columns = [c if type(c) is str else str(c) for c in labels]
     if len(set(columns)) != len(columns):
@@ -331,12 +333,11 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                            id_column, names_row)
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
-        if ordinal or ordinal_estimator is not None:
-            raise OptionError("ordinal items need the raw answers, not summary statistics")
         if design is not None:
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
         spec = load_spec(model)
+        refuse_ordinal_for_summary(spec, ordinal, ordinal_estimator)
         refuse_for_summary_statistics(spec, "a covariance matrix" if covariance is not None else f"'{data}'")
         if covariance is not None:
             if data is not None:
@@ -1148,6 +1149,19 @@ def refuse_item_named_all(items) -> None:
                           "(ordinal=['all'], or --ordinal '\"all\"' on the command line), or rename it")
 
 
+def refuse_ordinal_for_summary(spec: Spec, ordinal, ordinal_estimator) -> None:
+    """Ordinal items, named by the ``ordinal`` option (or an ordinal estimator chosen) or by an 'ordinal' statement of
+    the model, need the rows of answers (their thresholds and polychoric correlations): with summary statistics an
+    error, naming the statement's file and line when the model asks for them."""
+    message = "ordinal items need the raw answers, not summary statistics"
+    if ordinal or ordinal_estimator is not None:
+        raise OptionError(message)
+    if spec.ordinal:
+        first = spec.ordinal[0]
+        raise ModelError(f"the 'ordinal' statement names '{printable(first.text)}': {message}; remove the statement or "
+                         f"give the rows of answers", first.location, spec.source_line(first.location))
+
+
 def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
     items = {n.text for n in spec.ordinal}
     if ordinal is not None and not isinstance(ordinal, str) and not (
@@ -1165,6 +1179,21 @@ def ordinal_items_of(spec: Spec, ordinal) -> set[str]:
     return items
 
 
+def _variables_agree(given: list[str], labels: list[str]) -> None:
+    """``variables`` given with a covariance matrix whose data frame labels its variables: an error naming the first
+    place where the list and the labels disagree (the labels would otherwise win without a word)."""
+    if given == labels:
+        return
+    k = next((k for k, (a, b) in enumerate(zip(given, labels)) if a != b), min(len(given), len(labels)))
+    if k < min(len(given), len(labels)):
+        found = f"variables names '{printable(given[k])}' as variable {k + 1}, where the frame's labels name " \
+                f"'{printable(labels[k])}'"
+    else:
+        found = f"variables names {len(given)} variables and the frame's labels {len(labels)}"
+    raise OptionError(f"the covariance matrix is a data frame whose labels name its variables, and {found}; leave "
+                      f"variables out, or give the list in the frame's order")
+
+
 def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):
     if n_obs is None:
         raise OptionError("a covariance matrix needs the number of observations (n_obs)")
@@ -1175,6 +1204,8 @@ def _api_summary(covariance, n_obs, means, variables, matrix, sds, divisor):
             raise OptionError("the covariance matrix's row names differ from its column names; give the rows in the "
                               "order of the columns")
         values = covariance.to_numpy()
+        if variables is not None:
+            _variables_agree([str(v) for v in variables], names)
     else:
         values = covariance
         if variables is None:
@@ -1243,6 +1274,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         spec = load_spec(model)
+        refuse_ordinal_for_summary(spec, None, None)
         refuse_for_summary_statistics(spec, f"'{data}'")
         moments, _ = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)

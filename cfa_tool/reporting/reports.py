@@ -6,6 +6,7 @@ from __future__ import annotations
 import sys
 
 from cfa_tool.errors import OptionError
+from cfa_tool.version import check_written_version
 from cfa_tool.reporting.document import Report, ResultKind
 
 
@@ -73,6 +74,7 @@ def saved_report(payload: object, source: str) -> Report:
     """The report a saved JSON result carries; a one-line error naming ``source`` when it is not one."""
     if not isinstance(payload, dict) or payload.get("tool") != "cfa-tool":
         raise OptionError(f"{source}: not a result written by cfa-tool (the file of a command's --json option)")
+    check_written_version(payload, source)
     saved = payload.get("report")
     if saved is None:
         raise OptionError(f"{source}: this result holds no 'report' part (written before results carried their report, "

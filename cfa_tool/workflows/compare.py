@@ -12,7 +12,7 @@ from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missin
                                       missing_codes_option, of_summary_statistics,
                                       data_problems, odd_values_named, reference_group_applies, with_missing_reading,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
-                                      refuse_row_options, summary_source, with_design)
+                                      refuse_ordinal_for_summary, refuse_row_options, summary_source, with_design)
 from cfa_tool.data.answer_words import (code_answer_words, coding_json, refuse_different_codings,
                                         refuse_for_summary_statistics)
 from cfa_tool.data.labels import label_notes
@@ -134,8 +134,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     group_column(group)
     if summary_source(data):
         refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group, names_row=names_row)
-        if ordinal_items:
-            raise OptionError("ordinal items need the raw answers, not a summary-statistics file")
+        for spec in specs:
+            refuse_ordinal_for_summary(spec, ordinal, None)  # an estimator without ordinal items is refused above
         if design is not None:
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")

@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from cfa_tool.assessment.admissibility import sample_size_problems
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.exploration import (CountNote, CountRule, Exploration, ExploreSettings, ExtractionMethod, RotationMethod,
                                   RotationSpec, explore_correlations, from_ordinal_moments, from_sample_moments)
@@ -85,7 +86,9 @@ class ExploreResult(Presentable):
     split: SplitHalves | None = None
     notes: tuple[str, ...] = ()
     order: tuple[int, ...] = field(default=(), repr=False)  # items sorted by factor, then by loading
-    #: values in the item columns that look like no answers (assessment.admissibility.Problem): first in every view
+    #: too few rows for the solution's free parameters (the rule fit applies: assessment.admissibility
+    #: .sample_size_problems), then values in the item columns that look like no answers (assessment.admissibility
+    #: .Problem): first in every view
     data_problems: tuple = ()
     #: the answers file's statements for the draft model's items (the draft reads the data file as explore did)
     answer_statements: tuple[str, ...] = ()
@@ -664,6 +667,9 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
                                seed=seed, count=True, threshold=threshold,
                                factor_names=target_file.factors if target_file is not None else None)
     exploration = explore_correlations(correlations, settings)
+    sample_problems, sample_notes = sample_size_problems([exploration.data.n_obs],
+                                                         [exploratory_parameters(len(names), exploration.factors)])
+    notes.extend(sample_notes)
     fits = exploration.count.fits
     largest = exploration.factors + 2
     if max((f.factors for f in fits), default=0) < largest:
@@ -679,7 +685,14 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     if halves is not None:
         split_result = _confirm(exploration, halves, split, source, statements)
     return ExploreResult(source, names, rows_read, exploration, fits, requested, split_result, tuple(notes),
-                         sorted_items(exploration), data_problems, statements, coding_record(spec))
+                         sorted_items(exploration), sample_problems + data_problems, statements, coding_record(spec))
+
+
+def exploratory_parameters(items: int, factors: int) -> int:
+    """The free parameters of an exploratory factor model of ``items`` items and ``factors`` factors: the loadings and
+    uniquenesses, less the factors * (factors - 1) / 2 that the rotation leaves undetermined, so that its degrees of
+    freedom are ((items - factors)^2 - (items + factors)) / 2 (Lawley & Maxwell 1971)."""
+    return items * factors + items - factors * (factors - 1) // 2
 
 
 def _ordinal_items(ordinal, items: tuple[str, ...]) -> tuple[str, ...]:

@@ -10,6 +10,7 @@ import math
 import cfa_tool
 from cfa_tool.reporting.reports import report_of
 from cfa_tool.reporting.terminal import report_text
+from cfa_tool.version import __version__
 
 MODEL = "factor visual: x1\nfix variance(x1) = 0\nfactor textual: x4, x5, x6\n"
 
@@ -59,7 +60,7 @@ def test_every_note_finds_one_item_factors_by_one_detector_and_says_it_in_one_wo
         in reliability.note
     model_file, saved = tmp_path / "m.cfa", tmp_path / "fit.json"
     model_file.write_text(model)
-    saved.write_text(json.dumps(result.to_dict() | {"tool": "cfa-tool"}))
+    saved.write_text(json.dumps(result.to_dict() | {"tool": "cfa-tool", "version": __version__}))
     for scored in (cfa_tool.scores(model, hs_data), score_with_saved_fit(model_file, saved, hs_data)):
         quality = next(t for t in scores_report(scored).tables if t.title.startswith("Quality of the scores"))
         assert fact.format("determinacy, reliability and precision") + "." in quality.note

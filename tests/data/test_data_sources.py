@@ -495,6 +495,20 @@ def test_summary_statistics_from_python_are_checked_like_files(hs_items, options
     assert words in str(info.value)
 
 
+@pytest.mark.parametrize("variables, words", [
+    (["x4", "x2", "x3", "x1", "x5", "x6", "x7", "x8", "x9"],
+     "variables names 'x4' as variable 1, where the frame's labels name 'x1'"),
+    (ITEMS[:8], "variables names 8 variables and the frame's labels 9"),
+])
+def test_variables_that_contradict_a_labelled_frame_are_an_error(hs_items, variables, words):
+    frame = hs_items[ITEMS].cov()  # labelled x1..x9 on both sides
+    with pytest.raises(OptionError) as info:
+        cfa_tool.fit(THREE_FACTORS, covariance=frame, n_obs=301, variables=variables)
+    assert words in str(info.value)
+    same = cfa_tool.fit(THREE_FACTORS, covariance=frame, n_obs=301, variables=list(ITEMS))  # agreeing: accepted
+    assert same.fit.chi_square == pytest.approx(cfa_tool.fit(THREE_FACTORS, covariance=frame, n_obs=301).fit.chi_square)
+
+
 def test_python_options_of_the_wrong_type(hs_items):
     from cfa_tool.workflows.bootstrap import bootstrap
 

@@ -60,3 +60,29 @@ def test_a_date_column_of_a_workbook_is_filtered_by_date(tmp_path, rides):
     rides.assign(ride_date=pd.to_datetime(rides["ride_date"])).to_excel(tmp_path / "rides.xlsx", index=False)
     assert (cfa_tool.check(MODEL, tmp_path / "rides.xlsx", keep=["ride_date >= 2026-03-01"]).rows
             == _on_or_after(rides, datetime.date(2026, 3, 1)))
+
+
+@pytest.mark.parametrize("op", ["=", "!=", "<", "<=", ">", ">="])
+def test_a_date_without_a_time_means_the_whole_day_of_date_time_values(tmp_path, rides, op):
+    """Hostile tester s11 case 07: visits at 08:30 on April 1 were left out by '<= 2026-04-01' (the date read as
+    midnight) and '= 2026-04-01' found no row.  Check values: each operator applied to the rides' days by Python's
+    own datetime.date comparisons."""
+    import operator
+
+    from cfa_tool.data.filters import apply_filters, parse_filter
+
+    timed = rides.assign(ride_date=[f"{d.isoformat()} 08:30" for d in rides["ride_date"]])
+    path = tmp_path / "timed.csv"
+    timed.to_csv(path, index=False)
+    days = list(rides["ride_date"])
+    day = max(sorted(set(days)), key=days.count)  # a day with rides, which '<' and '<=' tell apart
+    test = {"=": operator.eq, "!=": operator.ne, "<": operator.lt, "<=": operator.le, ">": operator.gt,
+            ">=": operator.ge}[op]
+    expected = sum(test(d, day) for d in rides["ride_date"])
+    assert 0 < days.count(day) and 0 < expected < len(days)
+    assert cfa_tool.check(MODEL, path, keep=[f"ride_date {op} {day}"]).rows == expected
+    _, notes, _ = apply_filters(timed, [parse_filter(f"ride_date {op} {day}")], "timed.csv")
+    assert "compared with the day of each value, since 'ride_date' holds times of day" in notes[0]
+    # a time given is compared as it is: 08:30 on that day is not after 08:30
+    later = sum(d > day for d in rides["ride_date"])
+    assert cfa_tool.check(MODEL, path, keep=[f"ride_date > {day} 08:30"]).rows == later

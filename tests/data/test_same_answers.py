@@ -11,6 +11,7 @@ import pytest
 import cfa_tool
 from cfa_tool.assessment.admissibility import ProblemKind
 from cfa_tool.data.same_answers import same_answer_rows
+from cfa_tool.version import __version__
 from tests.conftest import simulate_cfa
 
 MODEL = "factor f: a1, a2, a3, a4\nfactor g: b1, b2, b3, b4\n"
@@ -139,7 +140,7 @@ def test_scores_of_other_data_name_that_files_rows_and_say_which_are_the_fits(sa
     wave.loc[2, items] = 2.0  # row 3 of the new wave: 2 to every item
     if saved:
         path = tmp_path / "fit.json"
-        path.write_text(json.dumps({"tool": "cfa-tool", **result.to_dict()}))
+        path.write_text(json.dumps({"tool": "cfa-tool", "version": __version__, **result.to_dict()}))
         scored = score_with_saved_fit(MODEL + REVERSED, path, wave, id_column="respondent")
     else:
         scored = score_with_fit(result, wave, id_column="respondent")

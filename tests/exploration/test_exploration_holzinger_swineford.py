@@ -104,3 +104,26 @@ def test_draft_model_is_ready_for_a_confirmatory_fit(hs_data, hs_input):
     speed = [p for p in found.draft.placements if p.item in ("x7", "x8")]
     assert all(p.placement is Placement.ON_FACTOR and not found.draft.written[p.factor] for p in speed)
     assert any(line.startswith("#") and "fewer than 3" in line for line in lines)
+
+
+def test_explore_on_too_few_rows_says_so_first(hs_data):
+    """Hostile tester s11 case 03: explore wrote a 3-factor solution of 12 items on 15 rows without a word on the
+    sample size.  The rule is fit's (assessment.admissibility.sample_size_problems: fewer rows than free parameters a
+    caution, fewer than 5 per parameter a note; a rule of thumb, Bentler & Chou 1987, recalled from memory).  The free
+    parameters of an exploratory model: 9 items and 3 factors leave 12 degrees of freedom of 45 moments (Lawley &
+    Maxwell 1971, ((p - m)^2 - (p + m)) / 2), so 33; one factor leaves 27 df (the published one-factor chi-square's,
+    recalled from memory above), so 18."""
+    from cfa_tool.workflows.explore import exploratory_parameters
+
+    assert exploratory_parameters(9, 3) == 45 - ((9 - 3) ** 2 - (9 + 3)) // 2 == 33
+    assert exploratory_parameters(9, 1) == 45 - 27 == 18
+    few = cfa_tool.explore(hs_data[list(ITEMS)].iloc[:15], factors=3)
+    assert few.exploration.data.n_obs == 15
+    assert few.problems()[0].startswith("15 rows for the 33 free parameters of the model"), few.problems()
+    assert "Bentler & Chou 1987" in few.problems()[0] and "a convention, not a law" in few.problems()[0]
+    some = cfa_tool.explore(hs_data[list(ITEMS)].iloc[:60], factors=3)  # 60 rows: at least 33, fewer than 5 * 33
+    assert not any("free parameters" in p for p in some.problems())
+    assert any(n.startswith("60 rows for the 33 free parameters of the model, fewer than 5 per parameter")
+               for n in some.notes), some.notes
+    full = cfa_tool.explore(hs_data[list(ITEMS)], factors=3)  # 301 rows: more than 5 * 33
+    assert not any("free parameters" in p for p in full.problems() + list(full.notes))

@@ -256,8 +256,8 @@ def _error_line(err: str) -> str:
     (b'{"a": 1}', "not a result written by cfa-tool"),
     (b"[1, 2]", "not a result written by cfa-tool"),
     (b'{"tool": "cfa-tool", "version": "0.9", "fit": {}}', "holds no 'report' part"),
-    (b'{"tool": "cfa-tool", "version": "1", "report": {"kind": "fit", "title": "x"}}', "incomplete or changed by hand"),
-    (b'{"tool": "cfa-tool", "version": "1", "report": {"kind": "nonsense", "title": "x", "notice": null, "lines": [],'
+    (b'{"tool": "cfa-tool", "version": "0.1.0", "report": {"kind": "fit", "title": "x"}}', "incomplete or changed by hand"),
+    (b'{"tool": "cfa-tool", "version": "0.1.0", "report": {"kind": "nonsense", "title": "x", "notice": null, "lines": [],'
      b' "tables": []}}', "incomplete or changed by hand"),
 ])
 def test_report_refuses_a_file_that_is_not_a_result_in_one_line(tmp_path, capsys, content, words):

@@ -17,6 +17,7 @@ import pytest
 from cfa_tool.assessment.admissibility import ProblemKind, estimate_row_problems
 from cfa_tool.model.saved_estimates import saved_rows
 from cfa_tool.cli import main
+from cfa_tool.version import __version__
 from tests.conftest import DATASETS, THREE_FACTORS
 
 HS_FILE = DATASETS / "holzinger_swineford_1939.csv"
@@ -31,7 +32,7 @@ def _run(argv, capsys):
 @pytest.fixture(scope="module")
 def saved(hs_three) -> dict:
     assert hs_three.admissible
-    return hs_three.to_dict() | {"tool": "cfa-tool", "report": None}
+    return hs_three.to_dict() | {"tool": "cfa-tool", "version": __version__, "report": None}
 
 
 def _edited(saved: dict, kind: str, variables: list[str], value: float) -> dict:
@@ -256,7 +257,7 @@ def test_an_inadmissible_fit_is_refused_alike_in_python_and_on_the_command_line(
     assert not isinstance(in_python.value, EstimationError)
     model, fitted = tmp_path / "heywood.cfa", tmp_path / "heywood.json"
     model.write_text(model_text)
-    fitted.write_text(json.dumps(heywood.to_dict() | {"tool": "cfa-tool"}))
+    fitted.write_text(json.dumps(heywood.to_dict() | {"tool": "cfa-tool", "version": __version__}))
     code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", fitted, "--output", tmp_path / "s.csv"],
                         capsys)
     said = str(in_python.value).split(": ", 1)[1]  # the same words after the name of the fit
@@ -295,3 +296,29 @@ def test_scores_refuse_a_model_file_whose_reversed_items_differ_from_the_fit(tmp
     assert code == 2 and err.count("\n") == 1 and not out.exists()
     assert "it declares x2 reversed, which the fit did not" in err
     assert _run(["scores", model, "--data", HS_FILE, "--from-fit", fitted, "--output", out], capsys)[0] == 0
+
+
+@pytest.mark.parametrize("version, words", [
+    ("9.0.0", "written by cfa-tool 9.0.0, and this is cfa-tool 0.1.0, which reads results written by version 0.x or "
+              "earlier"),
+    (None, "the result names no version of cfa-tool; this is cfa-tool 0.1.0"),
+])
+def test_a_saved_fit_of_a_newer_major_version_or_of_none_is_refused(tmp_path, saved, capsys, version, words):
+    """Hostile tester s11 case 18: report and scores --from-fit read a result whose version was 9.0.0, or absent,
+    without a word.  An older file of this major version is read (0.0.1 below)."""
+    assert __version__ == "0.1.0"  # the words above name it
+    model = tmp_path / "hs.cfa"
+    model.write_text(THREE_FACTORS)
+    payload = {k: v for k, v in saved.items() if k != "version"} | ({"version": version} if version else {})
+    path = tmp_path / "fit.json"
+    path.write_text(json.dumps(payload))
+    out = tmp_path / "scores.csv"
+    for argv in (["scores", model, "--data", HS_FILE, "--from-fit", path, "--output", out],
+                 ["report", path, "--html", tmp_path / "r.html"],
+                 ["simulate", model, "--n", 50, "--output", tmp_path / "rows.csv", "--population-from", path]):
+        code, _, err = _run(argv, capsys)
+        assert code == 2 and len(err.strip().splitlines()) == 1 and words in err, (argv[0], err)
+    assert not out.exists() and not (tmp_path / "r.html").exists()
+    path.write_text(json.dumps(saved | {"version": "0.0.1"}))
+    code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", path, "--output", out], capsys)
+    assert code == 0 and out.exists(), err

@@ -22,6 +22,7 @@ from scipy.stats import norm
 import cfa_tool
 from cfa_tool.errors import DataError
 from cfa_tool.workflows.factor_scores import score_with_saved_fit, scores
+from cfa_tool.version import __version__
 
 CUTS = (-1.2, -0.3, 0.5, 1.3)
 ONE = "factor f: q1, q2, q3, q4, y1\nordinal q1..q4\n"
@@ -42,7 +43,7 @@ def _draw(n: int, seed: int, mean: float = 0.0) -> pd.DataFrame:
 
 def _saved(result, tmp_path, name: str = "fit.json"):
     path = tmp_path / name
-    path.write_text(json.dumps(dict(result.to_dict(), tool="cfa-tool")))
+    path.write_text(json.dumps(dict(result.to_dict(), tool="cfa-tool", version=__version__)))
     return path
 
 
