@@ -285,8 +285,11 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
         refuse_for_summary_statistics(spec, moments.source)
         check_columns(spec, list(moments.names), moments.source)
         with estimation_of(f"model {name}"):
-            results.append(_described(of_summary_statistics(fit_moments(spec, moments, fit_options), moments, ()),
-                                      spec, None))
+            try:
+                fitted = fit_moments(spec, moments, fit_options)
+            except NotIdentified as failure:  # reported among the others, as with rows of data
+                fitted = unestimated(spec, moments, fit_options, None, failure)
+            results.append(_described(of_summary_statistics(fitted, moments, ()), spec, None))
     tests, not_nested = _pairwise_tests(specs, names, results, [[(None, moments)]] * len(specs))
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), moments.n_obs, 0,
                       notes=tuple(notes))

@@ -17,8 +17,8 @@ import re
 
 import pytest
 
-from cfa_tool.cli import main
 from cfa_tool.resources import resource_dir
+from tests.conftest import run_cli
 
 PUNCTUALITY = 'name "punctuality only"\nfactor punctuality: on_time, short_wait, accurate_info, easy_transfer\n'
 
@@ -26,12 +26,6 @@ PUNCTUALITY = 'name "punctuality only"\nfactor punctuality: on_time, short_wait,
 def _flat(text: str) -> str:
     """The terminal's box as one line of words (its borders and line breaks left out)."""
     return re.sub(r"[\u2503\s]+", " ", text)
-
-
-def _run(argv, capsys):
-    code = main([str(a) for a in argv])
-    out = capsys.readouterr()
-    return code, out.out, out.err
 
 
 @pytest.fixture(scope="module")
@@ -48,7 +42,7 @@ def few_rows(tmp_path_factory):
 
 def test_a_model_that_did_not_converge_comes_first_in_every_view(few_rows, tmp_path, capsys):
     result, tables = tmp_path / "c.json", tmp_path / "tables"
-    code, out, err = _run(["compare", few_rows / "p1.cfa", few_rows / "m3.cfa", "--data", few_rows / "r15.csv",
+    code, out, err = run_cli(["compare", few_rows / "p1.cfa", few_rows / "m3.cfa", "--data", few_rows / "r15.csv",
                            "--json", result, "--tables", tables], capsys)
     assert code == 0, err
     first = out.lstrip().splitlines()[0]
@@ -68,7 +62,7 @@ def test_a_model_that_did_not_converge_comes_first_in_every_view(few_rows, tmp_p
 
 def test_no_model_estimated_stops_with_exit_3_naming_each(few_rows, tmp_path, capsys):
     result = tmp_path / "c.json"
-    code, out, err = _run(["compare", few_rows / "m1.cfa", few_rows / "m3.cfa", "--data", few_rows / "r15.csv",
+    code, out, err = run_cli(["compare", few_rows / "m1.cfa", few_rows / "m3.cfa", "--data", few_rows / "r15.csv",
                            "--json", result], capsys)
     assert code == 3 and err.count("\n") == 1 and not result.exists(), err
     assert "no model could be estimated" in err
@@ -84,7 +78,7 @@ def test_a_model_that_is_not_identified_is_reported_among_the_others(rider_demo,
                                         + "\nfactor a: on_time, short_wait\n")
     data = resource_dir("demo") / "rider_survey.csv"
     result, html = folder / "c.json", folder / "c.html"
-    code, out, err = _run(["compare", folder / "m3.cfa", folder / "method2.cfa", "--data", data, "--json", result,
+    code, out, err = run_cli(["compare", folder / "m3.cfa", folder / "method2.cfa", "--data", data, "--json", result,
                            "--html", html], capsys)
     assert code == 0 and result.exists() and html.exists(), err
     box = _flat(out[:out.index("Model comparison")])

@@ -13,15 +13,9 @@ from __future__ import annotations
 import pytest
 
 from cfa_tool.cli import main
-from tests.conftest import DATASETS, THREE_FACTORS
+from tests.conftest import DATASETS, THREE_FACTORS, run_cli
 
-HS_FILE = DATASETS / "holzinger_swineford_1939.csv"
-
-
-def _run(argv, capsys):
-    code = main([str(a) for a in argv])
-    out = capsys.readouterr()
-    return code, out.out, out.err
+HS_FILE = DATASETS / "holzinger_swineford_1939.csv"  # Holzinger & Swineford (1939)
 
 
 @pytest.fixture(scope="module")
@@ -51,7 +45,7 @@ def test_a_model_file_that_changes_the_fitted_model_is_refused_naming_the_line(t
     model = tmp_path / "changed.cfa"
     model.write_text(text)
     out = tmp_path / "scores.csv"
-    code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", fitted, "--output", out], capsys)
+    code, _, err = run_cli(["scores", model, "--data", HS_FILE, "--from-fit", fitted, "--output", out], capsys)
     assert code == 2 and err.count("\n") == 1 and not out.exists(), err
     assert f"the model file {model} is not the model '{fitted}' was fitted with ({words})" in err
 
@@ -60,10 +54,10 @@ def test_a_statement_the_model_file_drops_is_named_by_the_fitted_model_s_line(tm
     model = tmp_path / "hs.cfa"
     model.write_text(THREE_FACTORS + "covary x7, x9\n")
     fitted = tmp_path / "fit.json"
-    assert _run(["fit", model, "--data", HS_FILE, "--json", fitted], capsys)[0] == 0
+    assert run_cli(["fit", model, "--data", HS_FILE, "--json", fitted], capsys)[0] == 0
     plain = tmp_path / "plain.cfa"
     plain.write_text(THREE_FACTORS)
-    code, _, err = _run(["scores", plain, "--data", HS_FILE, "--from-fit", fitted, "--output", tmp_path / "s.csv"], capsys)
+    code, _, err = run_cli(["scores", plain, "--data", HS_FILE, "--from-fit", fitted, "--output", tmp_path / "s.csv"], capsys)
     assert code == 2 and "it lacks the fitted model's line 6 ('covary x7, x9')" in err, err
 
 
@@ -72,7 +66,7 @@ def test_comments_order_title_and_start_values_do_not_count(tmp_path, capsys, fi
     model.write_text('# the same model, written otherwise\nname "another title"\nfactor speed: x7, x8, x9\n'
                      "factor textual: x4, x5, x6  # reading\nfactor visual: x1, x2, x3\nstart loading(visual, x2) = 0.5\n")
     out = tmp_path / "scores.csv"
-    code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", fitted, "--output", out], capsys)
+    code, _, err = run_cli(["scores", model, "--data", HS_FILE, "--from-fit", fitted, "--output", out], capsys)
     assert code == 0 and out.exists(), err
 
 
@@ -80,9 +74,9 @@ def test_a_fit_of_an_exploratory_block_is_refused_for_that_reason(tmp_path, caps
     model = tmp_path / "es.cfa"
     model.write_text("exploratory factors f1, f2, f3 from x1, x2, x3, x4, x5, x6, x7, x8, x9 rotated by geomin\n")
     fitted = tmp_path / "es.json"
-    assert _run(["fit", model, "--data", HS_FILE, "--json", fitted], capsys)[0] == 0
+    assert run_cli(["fit", model, "--data", HS_FILE, "--json", fitted], capsys)[0] == 0
     out = tmp_path / "scores.csv"
-    code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", fitted, "--output", out], capsys)
+    code, _, err = run_cli(["scores", model, "--data", HS_FILE, "--from-fit", fitted, "--output", out], capsys)
     assert code == 2 and not out.exists()
     assert "'scores' is not available for a model with an exploratory block" in err, err
     assert "another model" not in err
