@@ -89,3 +89,17 @@ def test_a_model_that_is_not_identified_is_reported_among_the_others(rider_demo,
     failed = models["Three factors and a two-item factor"]
     assert not failed["converged"] and failed["fit"] is None
     assert any("not identified" in p["explanation"] for p in failed["problems"])
+
+
+def test_a_model_not_identified_by_summary_statistics_is_reported_among_the_others(tmp_path, capsys):
+    # the correlations of the first six Holzinger & Swineford (1939) tests (tests/datasets, two decimals), N = 301
+    stats = tmp_path / "stats.csv"
+    stats.write_text("covariance,x1,x2,x3,x4,x5,x6\nx1,1\nx2,.30,1\nx3,.44,.34,1\nx4,.37,.15,.16,1\n"
+                     "x5,.29,.14,.08,.73,1\nx6,.36,.19,.20,.70,.72,1\nn,301\n")
+    (tmp_path / "two.cfa").write_text("factor a: x1, x2, x3\nfactor b: x4, x5, x6\n")
+    (tmp_path / "pair.cfa").write_text('name "With a pair factor"\nfactor a: x1, x2, x3\nfactor b: x4, x5, x6\n'
+                                       "factor c: x1, x2\n")
+    code, out, err = run_cli(["compare", tmp_path / "two.cfa", tmp_path / "pair.cfa", "--data", stats], capsys)
+    assert code == 0, err
+    assert "With a pair factor could not be estimated: the model is not identified" in _flat(out)
+    assert run_cli(["fit", tmp_path / "pair.cfa", "--data", stats], capsys)[0] == 3  # as fit finds it alone
