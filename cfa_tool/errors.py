@@ -127,6 +127,15 @@ class EstimationError(CfaError):
     exit_code = 3
 
 
+class NotIdentified(EstimationError):
+    """The model is not identified with these data (its information matrix is singular); ``parameters``: the free
+    parameters involved, as the parameter table labels them."""
+
+    def __init__(self, message: str, parameters: tuple[str, ...] = ()):
+        self.parameters = tuple(parameters)
+        super().__init__(message)
+
+
 @contextmanager
 def estimation_of(what: str):
     """Name which model or sample an estimation failure belongs to, when a command fits several:

@@ -43,6 +43,15 @@ def rider_model() -> str:
     return (resource_dir("models") / "rider_three_factors.cfa").read_text()
 
 
+def run_cli(argv, capsys) -> tuple[int, str, str]:
+    """The command line run in this process on ``argv`` (paths and numbers as text): (exit code, output, errors)."""
+    from cfa_tool.cli import main
+
+    code = main([str(a) for a in argv])
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
 def holzinger_swineford() -> pd.DataFrame:
     """Holzinger & Swineford (1939): 301 pupils, ability tests x1..x9, two schools."""
     return pd.read_csv(DATASETS / "holzinger_swineford_1939.csv", index_col=0)

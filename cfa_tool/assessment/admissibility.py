@@ -39,6 +39,8 @@ class ProblemKind(enum.Enum):
         return member
 
     NOT_CONVERGED = ("not converged", "not converged", True)
+    # the information matrix is singular at the solution: no unique estimates (a workflow reporting several models)
+    NOT_IDENTIFIED = ("not identified", "not identified", True)
     NEGATIVE_RESIDUAL_VARIANCE = ("negative residual variance", "negative variance: impossible", True)
     NEGATIVE_FACTOR_VARIANCE = ("negative factor variance", "negative variance: impossible", True)
     FACTOR_CORRELATION_BEYOND_ONE = ("factor correlation beyond +/-1", "correlation beyond +/-1: impossible", True)
@@ -212,6 +214,7 @@ class Problem:
         K = ProblemKind
         text = {
             K.NOT_CONVERGED: "the estimation did not converge",
+            K.NOT_IDENTIFIED: "a model that the data do not identify",
             K.NEGATIVE_RESIDUAL_VARIANCE: f"a negative residual variance of {', '.join(names)} ({v})",
             K.NEGATIVE_FACTOR_VARIANCE: f"a negative variance of factor {', '.join(names)} ({v})",
             K.FACTOR_CORRELATION_BEYOND_ONE: f"a correlation of factors {' and '.join(names)} of {v}",
@@ -422,6 +425,22 @@ def identification_problems(labels: tuple[str, ...], se: np.ndarray, estimates: 
         + ": their standard errors are huge, so the model is close to not identified with these data.",
         "Check factors with two indicators (they need a clear correlation with another factor) and loadings near zero; "
         "fix or drop what the data cannot inform.", None)]
+
+
+def not_identified(parameters: tuple[str, ...]) -> Problem:
+    """A model whose information matrix is singular at its solution (assessment.identification), reported as a
+    model that could not be estimated (Bollen 1989, ch. 4: its parameters have no unique values)."""
+    return Problem(ProblemKind.NOT_IDENTIFIED, tuple(parameters), None,
+                   "The model is not identified with these data (the information matrix is singular), so its "
+                   "parameters have no unique values; no estimate, fit index or test of it can be interpreted.",
+                   "Fix one of the parameters involved or add constraints (a factor of two items needs a clear "
+                   "correlation with another factor).")
+
+
+def failure_words(result) -> str:
+    """Why a result could not be estimated, in the few words a table cell or a paragraph shows."""
+    return ("not identified" if any(p.kind is ProblemKind.NOT_IDENTIFIED for p in result.problems)
+            else "did not converge")
 
 
 def not_converged(message: str, max_iterations: int) -> Problem:

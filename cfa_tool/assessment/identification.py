@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from cfa_tool.errors import EstimationError, ModelError
+from cfa_tool.errors import ModelError, NotIdentified
 from cfa_tool.language.names import written_name
 from cfa_tool.language.spec import Spec
 from cfa_tool.model.parameters import ParameterTable
@@ -64,9 +64,10 @@ def check_information_rank(information: np.ndarray, labels: tuple[str, ...], fac
     vals, vecs = np.linalg.eigh(normalised)
     weights = np.abs(vecs[:, 0])
     involved = [labels[k] for k in np.argsort(-weights) if weights[k] > 0.1][:6]
-    raise EstimationError(
+    raise NotIdentified(
         "the model is not identified with these data (the information matrix is singular); "
-        f"the parameters involved are: {', '.join(involved)}; fix one of them or add constraints"
+        f"the parameters involved are: {', '.join(involved)}; fix one of them or add constraints",
+        tuple(involved),
     )
 
 

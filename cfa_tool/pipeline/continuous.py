@@ -12,7 +12,8 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.assessment.admissibility import Problem, ProblemKind, group_size_problems, solution_problems
+from cfa_tool.assessment.admissibility import (Problem, ProblemKind, group_size_problems, not_identified,
+                                               solution_problems)
 from cfa_tool.data.descriptives import answer_extremes, item_shape
 from cfa_tool.assessment.convergence import nonconvergence_message
 from cfa_tool.assessment.diagnostics import case_diagnostics, incomplete_case_diagnostics, normalized_residuals
@@ -27,7 +28,7 @@ from cfa_tool.assessment.standardized import r_squared, standardization, standar
 from cfa_tool.data.kept_rows import RowNaming, rows_listed
 from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, moments_with_gaps
-from cfa_tool.errors import CfaError, OptionError
+from cfa_tool.errors import CfaError, NotIdentified, OptionError
 from cfa_tool.estimation.ml import GroupMoments, NormalLikelihood, SingularMoments
 from cfa_tool.estimation.strategy import Alternative, search
 from cfa_tool.inference.standard_errors import observed_information, parameter_covariance, wald_inference
@@ -198,6 +199,19 @@ def fit_moments(spec: Spec, moments: SampleMoments | list[tuple[str | None, Samp
         return assess(spec, groups, est, options, group_column)
 
 
+def unestimated(spec: Spec, moments: SampleMoments | list[tuple[str | None, SampleMoments]], options: FitOptions,
+                group_column: str | None, failure: NotIdentified) -> FitResult:
+    """A model the data do not identify (``failure``: :func:`fit_moments`'s error that said so) as a result that could
+    not be estimated, that problem first: for a workflow that reports it among models that could be (compare)."""
+    groups = [(None, moments)] if isinstance(moments, SampleMoments) else list(moments)
+    with blas_threads_for(len(spec.observed_names)):
+        est = estimate(spec, groups, options)
+        result = assess(spec, groups, replace(est, converged=False, message=str(failure)), options, group_column,
+                        identification_known=True)
+    return replace(result, problems=tuple(not_identified(failure.parameters) if p.kind is ProblemKind.NOT_CONVERGED
+                                          else p for p in result.problems))
+
+
 #: what keeps the rows listwise deletion leaves out, by the kind of items
 FULL_INFORMATION_INSTEAD = "full-information ML (--incomplete-rows full-information)"
 PAIRWISE_INSTEAD = "pairwise present rows (the default for ordinal items, without --incomplete-rows listwise)"
@@ -252,8 +266,9 @@ def rows_left_out(groups, missing: MissingData | None,
 
 
 def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Estimation, options: FitOptions,
-           group_column: str | None = None) -> FitResult:
-    """Standard errors, fit indices, standardized values, modification indices and warnings."""
+           group_column: str | None = None, identification_known: bool = False) -> FitResult:
+    """Standard errors, fit indices, standardized values, modification indices and warnings; ``identification_known``:
+    the estimation is one that the rank check already found not identified (:func:`unestimated`)."""
     table, model, likelihood, theta = est.table, est.model, est.likelihood, est.theta
     if options.test is FitTest.ROBUST:  # the robust test that suits the rows fitted (FitTest.for_rows)
         rows = MissingData.LISTWISE if likelihood.complete_data else MissingData.FULL_INFORMATION
@@ -331,7 +346,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     else:
         # a model that is not identified often shows itself by not converging: say so when it is the cause
         evaluation = likelihood.evaluate(theta)
-        if evaluation is not None and np.all(np.isfinite(evaluation.information)):
+        if not identification_known and evaluation is not None and np.all(np.isfinite(evaluation.information)):
             check_information_rank(evaluation.information, table.free_labels)
     small, small_notes = group_size_problems(table, [m.n_obs for _, m in groups])
     warnings.extend(small_notes)

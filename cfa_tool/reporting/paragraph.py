@@ -18,7 +18,7 @@ from dataclasses import dataclass
 
 from cfa_tool.method import (MISSING_AT_RANDOM, MISSING_COMPLETELY_AT_RANDOM, DifferenceMethod, Information, FitTest, Items, MissingData,
                               Weighting)
-from cfa_tool.assessment.admissibility import ProblemKind, design_cautions
+from cfa_tool.assessment.admissibility import ProblemKind, design_cautions, failure_words
 from cfa_tool.assessment.method_factors import bifactor_parts, cross_cutting_factors, uncorrelated_pairs
 from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.non_answers import non_answer_clause
@@ -844,7 +844,7 @@ def _fit_figures(result) -> str:
     """A model's fit in a few figures: the test the comparison reads (the corrected one when there is one)."""
     f, r = result.fit, result.robust
     if not result.converged or f is None:
-        return "did not converge"
+        return failure_words(result)
     if f.df == 0:
         return "was just-identified (0 df), so its fit could not be tested"
     if r is not None:

@@ -7,7 +7,8 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
-from cfa_tool.assessment.admissibility import DESIGN_CAUTIONS, ProblemKind, design_cautions, not_admissible_sentence
+from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, ProblemKind, design_cautions, failure_words,
+                                               not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
 from cfa_tool.language.names import names_text
 from cfa_tool.model.description import label_words, parameter_words
@@ -25,6 +26,7 @@ from cfa_tool.workflows.invariance import CONFIGURAL_INDICES
 
 SOME_NOT_ADMISSIBLE = "Some solutions are not admissible: do not interpret them"
 CHECK_SOLUTIONS = "Check before interpreting these solutions"  # the cautions of several models' solutions
+SOME_NOT_ESTIMATED = "Some models could not be estimated: nothing of them is a result"
 CHANGE_GUIDES = ("Changes in CFI and RMSEA are read against common-practice guides (a fall in CFI of more than .010, "
                  "Cheung & Rensvold 2002; a rise in RMSEA of .015 or more, Chen 2007), which are conventions, not tests.")
 CHANGES_DESCRIBED = ("Changes in CFI and RMSEA describe the difference only: the common-practice guides for them "
@@ -34,7 +36,7 @@ CHANGES_DESCRIBED = ("Changes in CFI and RMSEA describe the difference only: the
 
 def _admissible_cell(result) -> str:
     if not result.converged:
-        return "did not converge"
+        return failure_words(result)
     return "yes" if result.admissible else "NO"
 
 
@@ -43,6 +45,24 @@ def _problem_lines(named_results) -> list[str]:
     return [f"The solution of {name} is not admissible (" + "; ".join(p.phrase() for p in r.problems if p.kind.inadmissible)
             + "): do not interpret its estimates or fit, and do not choose it over another model on its fit."
             for name, r in named_results if r.converged and not r.admissible]
+
+
+def _failed_lines(named_results) -> list[str]:
+    """One line per model that could not be estimated, with the problems that say why first (fewer rows than free
+    parameters, a group smaller than its model), as fit names them when it stops: problems first in every view."""
+    lines = []
+    for name, r in named_results:
+        if r.converged:
+            continue
+        failure = next((p for p in r.problems if p.kind in (ProblemKind.NOT_CONVERGED, ProblemKind.NOT_IDENTIFIED)), None)
+        advice = f" What to try: {failure.advice}" if failure is not None else ""
+        why = (r.message if failure is not None and failure.kind is ProblemKind.NOT_IDENTIFIED else
+               f"its estimation did not converge ({r.message})")
+        lines.append(f"{name} could not be estimated: {why}; nothing of it is a result, and no model is tested "
+                     f"against it.{advice}")
+        lines += [f"{name}: " + (f"group {p.group}: " if p.group is not None else "") + p.line() for p in r.problems
+                  if p.kind in (ProblemKind.SMALL_SAMPLE, ProblemKind.SMALL_GROUP)]
+    return lines
 
 
 def _caution_lines(named_results, poor_fit: bool = True) -> list[str]:
@@ -78,11 +98,27 @@ def _design_caution_lines(named_results) -> list[str]:
     return [whose[0].upper() + whose[1:] + p.line() for p in problems]
 
 
-def _notice(problems: list[str], cautions: list[str] = ()) -> ProblemNotice | None:
+def _notice(problems: list[str], cautions: list[str] = (), failed: bool = False) -> ProblemNotice | None:
+    """The box of several solutions' problems; ``failed``: some model could not be estimated at all."""
     if not problems and not cautions:
         return None
-    return ProblemNotice(SOME_NOT_ADMISSIBLE if problems else CHECK_SOLUTIONS, tuple(problems) + tuple(cautions),
-                         bool(problems))
+    heading = SOME_NOT_ESTIMATED if failed else SOME_NOT_ADMISSIBLE if problems else CHECK_SOLUTIONS
+    return ProblemNotice(heading, tuple(problems) + tuple(cautions), bool(problems))
+
+
+def _models_problem_table(named_results, notice: ProblemNotice | None) -> ReportTable | None:
+    """Every model's problems as one table for data files (a fit's table, T.problem_table, with the model first)."""
+    rows, values, columns = [], [], None
+    for name, r in named_results:
+        own = T.problem_table(r)
+        if own is None:
+            continue
+        columns = [("Model", "l")] + list(zip(own.columns, own.align))
+        rows += [[name, *row] for row in own.rows]
+        values += [[name, *row] for row in own.values]
+    if notice is None or columns is None:
+        return None
+    return _table("problems", notice.heading, columns, rows, values=([c for c, _ in columns], values))
 
 
 def _fit_notice(result) -> ProblemNotice | None:
@@ -197,7 +233,7 @@ def boundary_note(tests, first: bool = True) -> str:
 def comparison_report(comparison) -> Report:
     named = list(zip(comparison.names, comparison.results))
     ordinal = comparison.results[0].method.ordinal
-    problems = _problem_lines(named)
+    problems = _failed_lines(named) + _problem_lines(named)
     fitted = [(name, r) for name, r in named if r.converged and r.fit is not None]
     lowest: dict[str, list[str]] = {}
     for index in ("AIC", "BIC"):
@@ -288,9 +324,10 @@ def comparison_report(comparison) -> Report:
                      else CHANGE_GUIDES if comparison.change_guides_apply else CHANGES_DESCRIBED)
     # the notes on the data and the estimation (answers outside a scale, codes read as labels) come under the lines,
     # first, as fit and invariance give them
-    return Report(ResultKind.COMPARE, "Model comparison", _notice(problems, cautions), lines, tuple(tables),
+    notice = _notice(problems, cautions, failed=not all(r.converged for r in comparison.results))
+    return Report(ResultKind.COMPARE, "Model comparison", notice, lines, tuple(tables),
                   tuple(notes), (GUIDE_NOTE, HIGH_STAKES_NOTE), comparison_paragraph(comparison),
-                  warnings=tuple(comparison.notes))
+                  problem_table=_models_problem_table(named, notice), warnings=tuple(comparison.notes))
 
 
 # ---------------------------------------------------------------- invariance

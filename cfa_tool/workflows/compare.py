@@ -21,12 +21,12 @@ from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.data.summary_stats import read_summary_file
-from cfa_tool.errors import OptionError, estimation_of
+from cfa_tool.errors import EstimationError, NotIdentified, OptionError, estimation_of
 from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.estimation.ml import NormalLikelihood
 from cfa_tool.pipeline.continuous import (FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, fit_moments,
                                           full_information_likelihood, listwise_problem, model_structure,
-                                          ordered_moments)
+                                          ordered_moments, unestimated)
 from cfa_tool.language.spec import Spec, with_ordinal_levels
 from cfa_tool.method import ORDINAL_FIT_CHANGE, FitTest, MissingData
 from cfa_tool.pipeline.results import FitResult, clean
@@ -139,7 +139,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         if design is not None:
             raise OptionError(f"summary statistics hold no rows, so a {design.names[0][0]} column cannot apply; give the "
                               f"raw data")
-        return _compare_summary(specs, names, data, fit_options, group)
+        return _some_estimated(_compare_summary(specs, names, data, fit_options, group))
     refuse_different_codings(specs, names)
     _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep,
                                               items={x for spec in specs for x in spec.observed_names}, names_row=names_row)
@@ -188,7 +188,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                      replace(fit_options, missing=None if pairwise else MissingData.LISTWISE),
                                      ordinal_items, ordinal_estimator, dropped, design, pairwise, notes)
             reference_group_applies(found.results, reference_group)
-            found = _with_data_problems(found, loaded, specs, group, design, dropped, pairwise, True)
+            found = _some_estimated(_with_data_problems(found, loaded, specs, group, design, dropped, pairwise, True))
             return replace(found, results=tuple(with_missing_reading(r, loaded, missing_codes) for r in found.results),
                            without_group=without_group)
         results = []
@@ -197,17 +197,38 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             groups, _ = moments_for(spec, complete, source, group, reference_group, fit_options.missing, design=design)
             data_groups.append(groups)
             with estimation_of(f"model {name}"):
-                result = fit_moments(spec, groups, fit_options, group_column=group)
+                try:
+                    result = fit_moments(spec, groups, fit_options, group_column=group)
+                except NotIdentified as failure:  # reported among the others, as one that does not converge is
+                    result = unestimated(spec, groups, fit_options, group, failure)
             result = with_missing_reading(_described(result, spec, tuple(label for label, _ in groups)
                                                      if group is not None else None), loaded, missing_codes)
             results.append(with_design(result, design_summary(complete, design, [m for _, m in groups]))
                            if design is not None else result)
         reference_group_applies(results, reference_group)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
-        return _with_data_problems(Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested),
-                                              len(complete), dropped, fit_options.missing, tuple(notes),
-                                              without_group=without_group),
-                                   loaded, specs, group, design, dropped, False, False)
+        return _some_estimated(_with_data_problems(Comparison(tuple(names), tuple(results), tuple(tests),
+                                                              tuple(not_nested), len(complete), dropped,
+                                                              fit_options.missing, tuple(notes),
+                                                              without_group=without_group),
+                                                   loaded, specs, group, design, dropped, False, False))
+
+
+def _some_estimated(found: Comparison) -> Comparison:
+    """``found`` when at least one model could be estimated (the others are reported as such among them, problems
+    first); otherwise the EstimationError that says why of each, as fit stops on a model it cannot estimate."""
+    if any(r.converged for r in found.results):
+        return found
+    from cfa_tool.assessment.admissibility import ProblemKind
+
+    def why(r: FitResult) -> str:
+        small = "".join(f"{p.explanation} " for p in r.problems
+                        if p.kind in (ProblemKind.SMALL_SAMPLE, ProblemKind.SMALL_GROUP))
+        identified = not any(p.kind is ProblemKind.NOT_IDENTIFIED for p in r.problems)
+        return small + (f"the estimation did not converge ({r.message})" if identified else r.message)
+
+    raise EstimationError("no model could be estimated, so nothing is compared: " + "; ".join(
+        f"model {name}: {why(r)}" for name, r in zip(found.names, found.results)))
 
 
 #: the keywords of :func:`compare` besides the fit options it passes on (an unknown keyword's near names,
@@ -264,8 +285,11 @@ def _compare_summary(specs, names, path, fit_options, group) -> Comparison:
         refuse_for_summary_statistics(spec, moments.source)
         check_columns(spec, list(moments.names), moments.source)
         with estimation_of(f"model {name}"):
-            results.append(_described(of_summary_statistics(fit_moments(spec, moments, fit_options), moments, ()),
-                                      spec, None))
+            try:
+                fitted = fit_moments(spec, moments, fit_options)
+            except NotIdentified as failure:  # reported among the others, as with rows of data
+                fitted = unestimated(spec, moments, fit_options, None, failure)
+            results.append(_described(of_summary_statistics(fitted, moments, ()), spec, None))
     tests, not_nested = _pairwise_tests(specs, names, results, [[(None, moments)]] * len(specs))
     return Comparison(tuple(names), tuple(results), tuple(tests), tuple(not_nested), moments.n_obs, 0,
                       notes=tuple(notes))
@@ -314,7 +338,8 @@ def _each_pair(names, results, test_pair, specs, likelihood: bool) -> tuple[list
                 not_nested.append(NotNested(names[a], names[b], different, information_criteria=False))
                 continue
             if not (results[a].converged and results[b].converged):
-                not_nested.append(NotNested(names[a], names[b], "a model did not converge", information_criteria=False))
+                not_nested.append(NotNested(names[a], names[b], "a model could not be estimated",
+                                            information_criteria=False))
                 continue
             found, reason = test_pair(a, b)
             if found:

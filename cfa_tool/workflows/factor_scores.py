@@ -10,6 +10,7 @@ order; a row that cannot be scored keeps empty cells, and the report counts them
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field, replace
 from enum import Enum
 from pathlib import Path
@@ -731,7 +732,7 @@ def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
     multi = saved.group_column is not None
     labels = tuple(g["name"] for g in saved.payload.get("groups", ())) if multi else None
     _same_item_names(spec, saved.data.variables)
-    _same_keying(spec, saved)
+    _same_model(spec, saved)
     if saved.payload.get("ordinal_items"):
         return ordinal_models_of_estimates(spec, rows, saved.data, labels, saved.source)
     mean_structure = multi or any(row.kind == "intercept" for row in rows)
@@ -748,23 +749,130 @@ def models_of_saved_fit(spec, saved: SavedFit) -> tuple[list, list]:
     return out, list(labels) if labels else [None]
 
 
-def _same_keying(spec, saved: SavedFit) -> None:
-    """The reverse-keyed items a model file declares must be those of the model the saved fit was made with (its
-    JSON's reliability names each factor's declared reversed items): a 'reversed' statement added or dropped since
-    changes the keyed sums the scores report, while the estimates are the fit's (hostile trial 9)."""
-    reliability = saved.payload.get("reliability") or {}
-    factors = reliability.get("factors", ()) if isinstance(reliability, dict) else ()
-    fitted = {x for f in factors if isinstance(f, dict) and f.get("keying") == "declared" for x in f.get("reversed", ())}
-    here = set(spec.reverse_keyed)
-    if factors and here != fitted:
-        added, dropped = sorted(here - fitted), sorted(fitted - here)
-        said = "; ".join(part for part in (
-            f"it declares {', '.join(printable(x) for x in added)} reversed, which the fit did not" if added else "",
-            f"it does not declare {', '.join(printable(x) for x in dropped)} reversed, as the fit did" if dropped else "")
-            if part)
+#: the statements of a parsed model that change the model fitted (a 'name' changes its title, 'start' where the search
+#: begins and 'answers' how words in the data are read, which the fit's saved coding decides: none changes it)
+_MODEL_STATEMENTS = ("factors", "covary", "uncorrelated", "fixed", "freed", "equal", "bounds", "scaling", "invariant",
+                     "noninvariant", "equal_across_groups", "ordinal", "reversed", "method", "invariance_level",
+                     "exploratory")
+
+
+def _plain(value):
+    """A parsed statement without the places it was written, as compared: two covaried names or the parameters of
+    an 'equal' statement in either order are the same statement (a factor's items keep theirs: the first is its
+    marker)."""
+    from cfa_tool.errors import Location
+    from cfa_tool.language.spec import Name, NamePair, ParameterRef
+
+    if isinstance(value, Name):
+        return value.text
+    if isinstance(value, NamePair):
+        return value.key()
+    if isinstance(value, ParameterRef):
+        return value.key(), value.group
+    if isinstance(value, tuple):
+        plain = tuple(_plain(v) for v in value)
+        return tuple(sorted(plain, key=repr)) if value and all(isinstance(v, ParameterRef) for v in value) else plain
+    if dataclasses.is_dataclass(value):
+        return type(value).__name__, tuple(_plain(getattr(value, f.name)) for f in dataclasses.fields(value)
+                                           if f.compare and not isinstance(getattr(value, f.name), Location))
+    return value
+
+
+def _place(value):
+    """The first place (a Location) written in a parsed statement, or None."""
+    from cfa_tool.errors import Location
+
+    if isinstance(value, Location):
+        return value
+    parts = (value if isinstance(value, tuple) else tuple(getattr(value, f.name) for f in dataclasses.fields(value))
+             if dataclasses.is_dataclass(value) else ())
+    return next((found for found in map(_place, parts) if found is not None), None)
+
+
+def _statements(spec) -> list[tuple[tuple, object]]:
+    """(the statement as compared, its place) of every statement of ``spec`` that changes the model."""
+    out = []
+    for name in _MODEL_STATEMENTS:
+        value = getattr(spec, name)
+        if name == "invariance_level":
+            if value is not None:
+                out.append(((name, value), spec.equalities_location))
+            continue
+        out += [((name, _plain(v)), _place(v)) for v in value]
+    return out
+
+
+def _first_difference(spec, fitted) -> str:
+    """The first statement (by line) of the model file ``spec`` that the fitted model ``fitted`` lacks, else the
+    first of ``fitted`` the model file lacks, in words naming its line ('' when the two models are the same: comments,
+    the order of statements, the title and start values do not count)."""
+    from collections import Counter
+
+    def unmatched(one, other) -> list:
+        left = Counter(key for key, _ in other)
+        found = []
+        for key, place in one:
+            if left[key]:
+                left[key] -= 1
+            else:
+                found.append((key, place))
+        return sorted(found, key=lambda kp: (kp[1].line, kp[1].column) if kp[1] is not None else (0, 0))
+
+    def quoted(model, place) -> str:
+        line = model.source_line(place) if place is not None else None
+        return f"line {place.line} ('{printable(line.strip())}')" if line else "a statement"
+
+    mine, theirs = _statements(spec), _statements(fitted)
+    extra, lacking = unmatched(mine, theirs), unmatched(theirs, mine)
+    if extra:
+        return f"its {quoted(spec, extra[0][1])} is not in the fitted model"
+    if lacking:
+        return f"it lacks the fitted model's {quoted(fitted, lacking[0][1])}"
+    return ""
+
+
+def _fitted_model_text(saved: SavedFit) -> str | None:
+    """The model text a saved fit was made with, as its saved report lists it (None when the file has no report)."""
+    report = saved.payload.get("report")
+    listings = report.get("listings", ()) if isinstance(report, dict) else ()
+    return next((str(x["text"]) for x in listings if isinstance(x, dict) and x.get("title") == "Model"
+                 and isinstance(x.get("text"), str)), None)
+
+
+def _same_model(spec, saved: SavedFit) -> None:
+    """A model file must be the model the saved fit was made with: a statement added, dropped or changed since
+    ('ordinal', 'bound', 'reversed', ...) changes the model, while the estimates and everything scored with them
+    are the fit's (hostile trials 9 and 11).  The two are compared as parsed models (:func:`_first_difference`).
+    A saved fit without its model text (a result's to_dict() has no report) is judged by the reverse-keyed items
+    its reliability names, which change the keyed sums."""
+    from cfa_tool.errors import ModelError
+    from cfa_tool.language.parser import parse_model
+
+    text, fitted = _fitted_model_text(saved), None
+    if text is not None:
+        try:
+            fitted = parse_model(text, source=saved.model_source)
+        except ModelError:  # a text this version cannot read: judged by its keying, as a fit without its text
+            fitted = None
+    said = ""
+    if fitted is not None:
+        said = _first_difference(spec, fitted)
+    else:
+        reliability = saved.payload.get("reliability") or {}
+        factors = reliability.get("factors", ()) if isinstance(reliability, dict) else ()
+        fitted_keys = {x for f in factors if isinstance(f, dict) and f.get("keying") == "declared"
+                       for x in f.get("reversed", ())}
+        here = set(spec.reverse_keyed)
+        if factors and here != fitted_keys:
+            added, dropped = sorted(here - fitted_keys), sorted(fitted_keys - here)
+            said = "; ".join(part for part in (
+                f"it declares {', '.join(printable(x) for x in added)} reversed, which the fit did not" if added else "",
+                f"it does not declare {', '.join(printable(x) for x in dropped)} reversed, as the fit did"
+                if dropped else "") if part)
+    if said:
         raise OptionError(f"the model file {spec.source} is not the model {saved.source} was fitted with ({said}); "
-                          f"a 'reversed' statement changes the keyed sums: give the model file of that fit, or fit "
-                          f"this model first")
+                          f"scores with that fit's estimates would be of another model: give the model file of that "
+                          f"fit, or fit this model first")
 
 
 def _same_item_names(spec, fitted: tuple[str, ...]) -> None:
@@ -843,10 +951,14 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     from cfa_tool.data.answer_words import with_saved_coding
     from cfa_tool.pipeline import inputs as api
 
+    given = api.load_spec(model)
+    # the model's own reason first, as scores without a saved fit give it (hostile trial 11: a fit of an exploratory
+    # block was called 'of another model')
+    api.without_exploratory_blocks(given, "scores", "its factors' scores would be those of the unrotated block")
     saved = read_saved_fit(saved_path)
     refuse_unknown_scale(saved.data, f"the fit in '{printable(str(saved_path))}'")
     refuse_inadmissible_saved_fit(saved.payload, saved.problems, saved.source, "no factor scores are computed with it")
-    spec = with_saved_coding(api.load_spec(model), saved.data.answer_coding, saved.source)  # the fit's coding
+    spec = with_saved_coding(given, saved.data.answer_coding, saved.source)  # the fit's coding
     chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")), standard_errors)
     models, labels = models_of_saved_fit(spec, saved)
     return _score_other_data(saved, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,

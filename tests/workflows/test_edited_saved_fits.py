@@ -294,7 +294,7 @@ def test_scores_refuse_a_model_file_whose_reversed_items_differ_from_the_fit(tmp
     out = tmp_path / "scores.csv"
     code, _, err = _run(["scores", keyed, "--data", HS_FILE, "--from-fit", fitted, "--output", out], capsys)
     assert code == 2 and err.count("\n") == 1 and not out.exists()
-    assert "it declares x2 reversed, which the fit did not" in err
+    assert "its line 6 ('reversed x2 on 0 to 10') is not in the fitted model" in err
     assert _run(["scores", model, "--data", HS_FILE, "--from-fit", fitted, "--output", out], capsys)[0] == 0
 
 
