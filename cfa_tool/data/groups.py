@@ -8,7 +8,7 @@ import pandas as pd
 from cfa_tool.data.labels import code_order, label_text, ordered_labels
 from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, sample_moments
-from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.errors import DataError, OptionError, check_rows_counted, printable
 from cfa_tool.method import MissingData
 
 
@@ -57,7 +57,15 @@ def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], sour
         part = frame.loc[(keys == label).to_numpy()]
         out.append((label, sample_moments(part, names, source, group=f"'{label}' of {column}", missing=missing,
                                           weights=weights)))
-    return out, int(keys.isna().sum())
+    return out, _without_group(out, keys, frame, column)
+
+
+def _without_group(groups: list, keys: pd.Series, frame: pd.DataFrame, column: str) -> int:
+    """The rows with no group label, after checking that the groups' rows and those rows are no more than the rows
+    of ``frame`` (each row in one group at most: errors.check_rows_counted)."""
+    without = int(keys.isna().sum())
+    check_rows_counted(sum(m.rows_read for _, m in groups) + without, len(frame), f"the groups of column '{column}'")
+    return without
 
 
 def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

@@ -28,7 +28,7 @@ from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_desi
 from cfa_tool.data.summary_stats import SUMMARY_SUFFIX, holds_summary, read_summary_file, summary_moments
 from cfa_tool import options as opt
 from cfa_tool.options import Option, option_in_both
-from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, printable
+from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, check_rows_counted, printable
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
@@ -770,6 +770,7 @@ def with_rows_read(result: FitResult, loaded: LoadedData) -> FitResult:
     """``result`` (a fit of rows with groups or a sampling design) counting as read the rows without a group label
     and the rows of weight 0 (each said in a note), so that the methods paragraph gives the rows left out of all
     the rows read, as ``fit``, ``compare`` and ``invariance`` read them."""
+    check_rows_counted(result.data.rows_read, len(loaded.frame), f"{loaded.source}: the rows of the groups")
     if result.data.rows_read == len(loaded.frame):
         return result
     return replace(result, data=replace(result.data, rows_read=len(loaded.frame),
