@@ -63,6 +63,9 @@ class ProblemKind(enum.Enum):
     SMALL_SAMPLE = ("fewer rows than parameters", "fewer rows than parameters", False)
     # not of the solution but of the data: group labels that differ only in case ('north', 'North'), kept apart
     GROUP_LABELS_BY_CASE = ("group labels differing only in case", "labels differing only in case", False)
+    # the same of a cluster or strata column ('School A', 'school a'): two clusters, so clustering understated
+    DESIGN_LABELS_BY_CASE = ("cluster or stratum labels differing only in case", "labels differing only in case",
+                             False)
     # not of the solution but of the data: an item answered by few of the rows (pipeline.inputs.with_odd_values)
     FEW_ANSWERS = ("item answered by few rows", "answered by few rows", False)
     # not of the solution but of the data: an item answered alike by all rows but a few (the same rule, extended:
@@ -226,6 +229,8 @@ class Problem:
             K.SMALL_SAMPLE: f"fewer rows ({v.split('.')[0]}) than free parameters of the model",
             K.GROUP_LABELS_BY_CASE: "group labels that differ only in upper and lower case, analysed as different "
                                     "groups",
+            K.DESIGN_LABELS_BY_CASE: "cluster or stratum labels that differ only in upper and lower case, analysed "
+                                     "as different clusters or strata",
             K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",

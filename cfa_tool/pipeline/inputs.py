@@ -459,8 +459,13 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
     (:func:`group_case_problems`) first."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    if group is not None:
-        return (weighted_out_problems(loaded.frame, group, design) + group_case_problems(loaded.frame, group)
+    if group is not None or (design is not None and (design.cluster or design.strata)):
+        design_columns = ((("cluster", ("cluster", "clusters"), design.cluster),
+                           ("strata", ("stratum", "strata"), design.strata)) if design is not None else ())
+        return (weighted_out_problems(loaded.frame, group, design)
+                + (group_case_problems(loaded.frame, group) if group is not None else ())
+                + tuple(p for part, unit, name in design_columns if name is not None
+                        for p in group_case_problems(loaded.frame, name, part, unit))
                 + odd_value_problems(loaded))
 
     marked = non_answer_caution(loaded.non_answers, loaded.source,
@@ -477,10 +482,12 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
         for odd in loaded.cautions + odd)
 
 
-def group_case_problems(frame: pd.DataFrame, group: str) -> tuple:
+def group_case_problems(frame: pd.DataFrame, group: str, part: str = "group",
+                        unit: tuple[str, str] = ("group", "groups")) -> tuple:
     """A caution naming the labels of the group column that differ only in upper and lower case ('north' and
     'North'), with the rows of each: they are analysed as different groups, and only the user knows whether they
-    are one (they are not merged silently, as labels differing by spaces at their ends are)."""
+    are one (they are not merged silently, as labels differing by spaces at their ends are); with ``part`` and
+    ``unit`` (one, several) the same rule for a cluster or strata column ('School A' and 'school a' are two clusters)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.data.labels import case_variants
 
@@ -490,12 +497,18 @@ def group_case_problems(frame: pd.DataFrame, group: str) -> tuple:
     if not found:
         return ()
     listed = "; ".join(" and ".join(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in variants)
-                       for variants in found)
-    return (Problem(ProblemKind.GROUP_LABELS_BY_CASE, (), float(len(found)),
-                    f"In the group column '{printable(group)}', labels that differ only in upper and lower case are "
-                    f"analysed as different groups: {listed}.",
-                    "if they are one group, recode the column so that they are written alike; if they are different "
-                    "groups, give them labels that differ in more than case."),)
+                       for variants in found[:CASE_VARIANTS_SHOWN])
+    more = len(found) - CASE_VARIANTS_SHOWN
+    listed += f"; and {more} more such set{'s' if more != 1 else ''}" if more > 0 else ""
+    kind = ProblemKind.GROUP_LABELS_BY_CASE if part == "group" else ProblemKind.DESIGN_LABELS_BY_CASE
+    return (Problem(kind, (), float(len(found)),
+                    f"In the {part} column '{printable(group)}', labels that differ only in upper and lower case are "
+                    f"analysed as different {unit[1]}: {listed}.",
+                    f"if they are one {unit[0]}, recode the column so that they are written alike; if they are "
+                    f"different {unit[1]}, give them labels that differ in more than case."),)
+
+
+CASE_VARIANTS_SHOWN = 5  # sets of labels differing only in case that a caution names before 'and N more'
 
 
 def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answers: tuple = (),
