@@ -79,6 +79,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the data: rows that gave one answer to every item, reverse-worded ones included
     # (data.same_answers), kept in the analysis
     SAME_ANSWER_ROWS = ("same answer to every item", "same answer throughout", False)
+    # not of the data's answers but of its rows: rows identical in every column to an earlier row (data.copied_rows),
+    # kept in the analysis; copies count twice, so N is too large and the standard errors too small
+    COPIED_ROWS = ("rows identical to earlier rows", "copies of rows", False)
     # not of the solution but of the data: a 'reversed ... on MIN to MAX' scale that no answer reaches at one end
     # (pipeline.inputs.scale_ends_problems): the keyed sums' means depend on the scale declared
     SCALE_ENDS_UNREACHED = ("declared scale wider than the answers", "scale ends unreached", False)
@@ -244,6 +247,7 @@ class Problem:
             K.GROUP_WEIGHTED_OUT: "a group every row of which has weight 0, left out of the analysis",
             K.UNKNOWN_GROUPS_SCORED: "rows in groups the earlier fit does not have, which get no scores",
             K.ANSWERS_BEYOND_FITTED: "answers outside the range of the rows the earlier fit analysed",
+            K.COPIED_ROWS: f"{v.split('.')[0]} rows identical in every column to earlier rows (kept in the analysis)",
             K.SAME_ANSWER_ROWS: "rows that gave the same answer to every item, reverse-worded ones included (kept in "
                                 "the analysis)",
             K.FACTOR_POINTS_AGAINST_ITEMS: f"factor {', '.join(names)} pointing against its items (a higher score "

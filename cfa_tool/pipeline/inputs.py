@@ -525,18 +525,19 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
                   design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
                   coverage: dict | None = None, n_obs: int | None = None) -> tuple:
     """The cautions on the data that come first in every view, composed here once for every command (fit, check,
-    compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: a 'reversed' statement's
+    compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: rows that are copies of
+    earlier rows (:func:`copied_row_problems`); a 'reversed' statement's
     declared scale that no answer reaches (:func:`scale_ends_problems`) and rows with one answer throughout
     (:func:`same_answer_problems`, ``ids``: data-row number -> id), both with a ``spec`` that declares reversed
     items; the groups the weights leave out, group labels differing by case and values that look like no answers
     (:func:`odd_value_problems`); items answered by few rows (``coverage``: item -> share of the ``n_obs`` rows
     analysed answering it) and nearly constant items (:func:`few_answers_problems`) among ``names`` (the model's
     items by default).  The data are not refused: the user may know better."""
-    found: tuple = ()
+    names = names if names is not None else (spec.observed_names if spec is not None else ())
+    found: tuple = copied_row_problems(loaded, group, design, names, ids or {})
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
-        found = scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
-    names = names if names is not None else (spec.observed_names if spec is not None else ())
+        found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
     found += odd_value_problems(loaded, group, design) + few_answers_problems(names, coverage or {}, n_obs, loaded,
                                                                               group)
     return tuple(dict.fromkeys(found))  # each once
@@ -552,6 +553,58 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: 
                                            coverage, getattr(result, "n_obs", None))
                   if p not in result.problems)
     return replace(result, problems=found + tuple(result.problems)) if found else result
+
+
+COPIED_ROWS_SHOWN = 5  # pairs of a copied row and its original that the caution names before 'and N more'
+#: in a file of the model's answers alone (no id, date or other column), respondents who answered alike look like
+#: copies; their identical rows are named only when they are at least this share of the rows (a rule of thumb of
+#: this project, not a published cutoff: an export appended to itself makes half of them copies)
+COPIED_SHARE_OF_ANSWERS_ALONE = 0.05
+
+
+def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignColumns | None, names: tuple[str, ...],
+                        ids: dict) -> tuple:
+    """A caution naming the rows analysed that are identical in every column of the file to an earlier row (a
+    row-number column left out: data.copied_rows), by row number and id (``ids``: row number -> id), the first
+    :data:`COPIED_ROWS_SHOWN` pairs; () when there are none.  In a file holding only the model's items and the
+    group and design columns, identical rows may be respondents who answered alike: named only when they are
+    :data:`COPIED_SHARE_OF_ANSWERS_ALONE` of the rows or more."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.copied_rows import copied_rows
+
+    frame = _labelled(loaded.frame, group)
+    items = [x for x in names if x in frame.columns]
+    block = loaded.items.of(loaded.frame, items) if loaded.items is not None else None  # taken out once per fit
+    if block is None and items:
+        block = item_values(frame, tuple(items))
+    elif block is not None and frame is not loaded.frame:
+        block = block[loaded.frame[group].notna().to_numpy()]  # the rows _labelled keeps
+    found = copied_rows(frame, row_numbers(frame), block)
+    if found is None:
+        return ()
+    described = set(names) | {group} | {name for _, name in (design.names if design is not None else ())}
+    if not set(frame.columns) - described - {found.numbering} and len(found) < COPIED_SHARE_OF_ANSWERS_ALONE * len(frame):
+        return ()
+
+    def row(r: int) -> str:
+        return f"row {r}" + (f" ({printable(ids[r])})" if ids.get(r) is not None else "")
+
+    n = len(found)
+    pairs = "; ".join(f"{row(c)} repeats {row(o)}" for c, o in list(zip(found.copies, found.originals))[:COPIED_ROWS_SHOWN])
+    more = f"; and {n - COPIED_ROWS_SHOWN} more" if n > COPIED_ROWS_SHOWN else ""
+    numbering = f" but the row-number column '{printable(found.numbering)}'" if found.numbering else ""
+    example = ""
+    if found.numbering and set(found.copies) == set(row_numbers(frame)[len(frame) - n:].tolist()):  # a block at the end
+        first = frame[found.numbering].iloc[len(frame) - n]
+        example = f" (here {Option.KEEP.given(f'{printable(found.numbering)} < {label_text(first)}')})"
+    return (Problem(ProblemKind.COPIED_ROWS, (), float(n),
+                    f"{n} of the {len(frame)} rows analysed {'is' if n == 1 else 'are'} identical in every column"
+                    f"{numbering} to an earlier row: {pairs}{more}. If they are copies (a file appended to itself, "
+                    f"rows pasted twice), each is counted as another respondent, so N is too large, the standard "
+                    f"errors too small and the chi-square too large.",
+                    f"delete the copies in a copy of the data file and analyse that, or leave them out with "
+                    f"{Option.KEEP} on a column that tells them apart{example}; if they are different respondents "
+                    f"who answered alike, nothing needs to change."),)
 
 
 SAME_ANSWER_ROWS_SHOWN = 10  # rows a caution about same-answer rows names before 'and N more'
