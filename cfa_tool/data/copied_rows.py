@@ -31,6 +31,20 @@ class CopiedRows:
     def __len__(self) -> int:
         return len(self.copies)
 
+    def longest_run(self) -> int:
+        """The most consecutive rows that repeat consecutive earlier rows in the same order (row 302 repeats 2, 303
+        repeats 3, ...): the mark of rows pasted or a file appended, which respondents answering alike by chance do
+        not leave."""
+        if not self.copies:
+            return 0
+        copies, originals = np.array(self.copies), np.array(self.originals)
+        follows = (np.diff(copies) == 1) & (np.diff(originals) == 1)
+        longest = current = 1
+        for step in follows.tolist():
+            current = current + 1 if step else 1
+            longest = max(longest, current)
+        return longest
+
 
 def numbering_column(frame: pd.DataFrame) -> str | None:
     """The first column of ``frame`` that numbers its rows: whole numbers, each exactly one more than the one in the

@@ -557,9 +557,10 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: 
 
 COPIED_ROWS_SHOWN = 5  # pairs of a copied row and its original that the caution names before 'and N more'
 #: in a file of the model's answers alone (no id, date or other column), respondents who answered alike look like
-#: copies; their identical rows are named only when they are at least this share of the rows (a rule of thumb of
-#: this project, not a published cutoff: an export appended to itself makes half of them copies)
-COPIED_SHARE_OF_ANSWERS_ALONE = 0.05
+#: copies (in simulated answers on 1 to 5 to six items, 26 of 300 rows repeated an earlier one by chance); their
+#: identical rows are named only when at least this many consecutive rows repeat consecutive earlier rows in order,
+#: as rows pasted twice or a file appended to itself leave them (a rule of thumb of this project, not a published one)
+COPIED_RUN_OF_ANSWERS_ALONE = 5
 
 
 def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignColumns | None, names: tuple[str, ...],
@@ -567,8 +568,8 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     """A caution naming the rows analysed that are identical in every column of the file to an earlier row (a
     row-number column left out: data.copied_rows), by row number and id (``ids``: row number -> id), the first
     :data:`COPIED_ROWS_SHOWN` pairs; () when there are none.  In a file holding only the model's items and the
-    group and design columns, identical rows may be respondents who answered alike: named only when they are
-    :data:`COPIED_SHARE_OF_ANSWERS_ALONE` of the rows or more."""
+    group and design columns, identical rows may be respondents who answered alike: named only when
+    :data:`COPIED_RUN_OF_ANSWERS_ALONE` of them or more in a row repeat earlier rows in the same order."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.data.copied_rows import copied_rows
 
@@ -583,7 +584,7 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     if found is None:
         return ()
     described = set(names) | {group} | {name for _, name in (design.names if design is not None else ())}
-    if not set(frame.columns) - described - {found.numbering} and len(found) < COPIED_SHARE_OF_ANSWERS_ALONE * len(frame):
+    if not set(frame.columns) - described - {found.numbering} and found.longest_run() < COPIED_RUN_OF_ANSWERS_ALONE:
         return ()
 
     def row(r: int) -> str:
