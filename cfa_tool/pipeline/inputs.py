@@ -962,7 +962,8 @@ def design_test(fit_options, design: DesignColumns):
 def design_problems(design, free: int) -> tuple:
     """The cautions of a sampling ``design`` (data.sample_design.SampleDesign) on a model of ``free`` parameters,
     first in every view, the same for fit, check, compare and invariance: too few clusters for cluster-robust
-    standard errors, and weights so uneven that Kish's effective sample size is below half the rows."""
+    standard errors, weights so uneven that Kish's effective sample size is below half the rows, and frequency
+    weights so large that they look like expansion (sampling) weights (first)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     problems: tuple = ()
@@ -971,6 +972,13 @@ def design_problems(design, free: int) -> tuple:
         problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), caution,
                              "read the p-values with caution, or fit without --cluster and say that rows are nested in "
                              "clusters."),)
+    counts = design.frequency_caution()
+    if counts:  # N itself is in doubt: first
+        problems = (Problem(ProblemKind.FREQUENCY_WEIGHTS_LARGE, (), float(design.sum_of_weights), counts,
+                            f"if they are expansion or other sampling weights, leave out "
+                            f"{Option.WEIGHT_KIND.given(WeightKind.FREQUENCY.value)}: weights are read as sampling "
+                            f"weights by default, rescaled to the rows, with sandwich standard errors; if every row "
+                            f"really stands for that many identical respondents, nothing needs to change."),) + problems
     uneven = design.weight_caution()
     if uneven:
         problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,
