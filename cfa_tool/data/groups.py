@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from enum import Enum
+
 import numpy as np
 import pandas as pd
 
@@ -31,18 +33,75 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
     if len(labels) < 2:
         only = f" ('{labels[0]}')" if labels else ""
         raise DataError(f"{source}: the group column '{column}' has only {len(labels)} group{only}; a multi-group analysis needs at least two")
-    if reference is not None:
+    if reference is None:
+        reference, _ = default_reference(frame, column, labels)
+    else:
         reference = label_text(reference) if isinstance(reference, str) else reference  # read as the labels are
         if reference not in labels:  # a labelled column's group may be given by its code, as row filters take it
             reference = code_order(frame, column).get(label_text(reference), reference)
         if reference not in labels:
             raise OptionError(f"{source}: '{reference}' is not a group of column '{column}' (groups: {', '.join(labels)})")
-        labels.remove(reference)
-        labels.insert(0, reference)
+    labels.remove(reference)
+    labels.insert(0, reference)  # the reference group first, the others in the order of their labels
     return labels
 
 
 _label = label_text
+
+
+class ReferenceRule(Enum):
+    """Why a group is the reference group (its factor means fixed at zero, the others' means differences from it):
+    ``value`` the word of the JSON, ``phrase`` the words beside the group's name in every report."""
+
+    def __new__(cls, word: str, phrase: str):
+        member = object.__new__(cls)
+        member._value_ = word
+        member.phrase = phrase
+        return member
+
+    GIVEN = ("given", "as chosen")
+    FIRST_CATEGORY = ("first category", "the first category of the column's categories")
+    LOWEST_CODE = ("lowest code", "the group of the lowest code")
+    LARGEST = ("largest", "the largest group")
+
+
+def default_reference(frame: pd.DataFrame, column: str, labels: list[str]) -> tuple[str, ReferenceRule]:
+    """The reference group when none is chosen, by one rule for every command with groups: of a pandas categorical
+    column (ordered or not), its first category that has rows; of a column of codes with value labels (SPSS, Stata),
+    the group of the lowest code; otherwise the largest group, whose means are estimated most precisely (ties: the
+    first in the order of the labels, ``labels`` as :func:`group_labels` orders them)."""
+    cells = frame[column]
+    if isinstance(cells.dtype, pd.CategoricalDtype):
+        present = set(labels)
+        first = next((label_text(c) for c in cells.cat.categories if label_text(c) in present), None)
+        if first is not None:
+            return first, ReferenceRule.FIRST_CATEGORY
+    coded = [label for label in code_order(frame, column).values() if label in labels]
+    if coded:
+        return coded[0], ReferenceRule.LOWEST_CODE
+    counts = cells.dropna().map(_label).value_counts()
+    most = max(int(counts.get(label, 0)) for label in labels)
+    return next(label for label in labels if int(counts.get(label, 0)) == most), ReferenceRule.LARGEST
+
+
+def reference_words(label: str, rule: ReferenceRule) -> str:
+    """The reference group and why, as every report says it beside the group's name: "north, the largest group;
+    choose another with --reference-group" (a group chosen by the user: its name alone)."""
+    from cfa_tool.options import Option
+
+    if rule is ReferenceRule.GIVEN:
+        return label
+    return f"{label}, {rule.phrase}; choose another with {Option.REFERENCE_GROUP}"
+
+
+def reference_rule(frame: pd.DataFrame, column: str, reference: str | None = None) -> ReferenceRule:
+    """Why the first group of ``column`` is the reference group: chosen (``reference`` given), or which branch of
+    :func:`default_reference` chose it."""
+    if reference is not None:
+        return ReferenceRule.GIVEN
+    if isinstance(frame[column].dtype, pd.CategoricalDtype):
+        return ReferenceRule.FIRST_CATEGORY
+    return ReferenceRule.LOWEST_CODE if code_order(frame, column) else ReferenceRule.LARGEST
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

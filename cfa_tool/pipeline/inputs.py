@@ -371,7 +371,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                                        ordinal_estimator, design, ids), by_row)
     reference_group_applies(result, reference_group)
     result = with_missing_reading(with_odd_values(result, loaded, group, spec, design, by_row), loaded, missing_codes)
-    repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
+    repeated = reference_note(result, frame, group, reference_group) + duplicate_note(
+        ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 
 
@@ -380,19 +381,39 @@ def reference_group_applies(results, reference_group: str | None) -> None:
     or fixed alike: the factor means fixed at zero in every group, as a configural model has them) is an option
     that cannot apply: an error, not a silently reordered report.  ``results``: one fit, or the fits compared."""
     results = results if isinstance(results, (list, tuple)) else (results,)
-    if reference_group is None or not any(r.multigroup for r in results):
+    if reference_group is None or not any(r.multigroup for r in results) or reference_sets_something(results):
         return
-    for result in results:
-        patterns: dict = {}
-        for r in result.estimates:
-            patterns.setdefault(r.group, set()).add((r.kind, r.variables, r.free, None if r.free else r.estimate))
-        if len({frozenset(p) for p in patterns.values()}) > 1:
-            return
     raise OptionError(f"{Option.REFERENCE_GROUP.given(printable(reference_group))} sets nothing in "
                       f"{'this model' if len(results) == 1 else 'these models'}: every group's factor means are fixed "
                       f"at zero and no other parameter is set by the reference group; it applies when factor means "
                       f"are estimated (intercepts held equal, as 'invariance scalar' or the invariance command hold "
                       f"them): leave it out")
+
+
+def reference_sets_something(results) -> bool:
+    """Whether the reference group sets anything in any of these fits in groups: some group's parameters are free or
+    fixed unlike another's (the factor means fixed at zero in the reference group alone)."""
+    for result in results:
+        patterns: dict = {}
+        for r in result.estimates:
+            patterns.setdefault(r.group, set()).add((r.kind, r.variables, r.free, None if r.free else r.estimate))
+        if len({frozenset(p) for p in patterns.values()}) > 1:
+            return True
+    return False
+
+
+def reference_note(results, frame: pd.DataFrame, group: str | None, reference_group: str | None) -> list[str]:
+    """The note naming the reference group of fits in groups and the rule that chose it (data.groups: the first
+    category, the lowest code or the largest group) when the user chose none and it sets something (the other
+    groups' factor means are differences from it); [] otherwise."""
+    results = results if isinstance(results, (list, tuple)) else (results,)
+    if (group is None or reference_group is not None or not results or not results[0].multigroup
+            or not reference_sets_something(results)):
+        return []
+    from cfa_tool.data.groups import reference_rule, reference_words
+
+    return [f"the reference group (its factor means fixed at zero, the other groups' means differences from it) is "
+            f"{reference_words(results[0].groups[0].label, reference_rule(frame, group))}"]
 
 
 def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
