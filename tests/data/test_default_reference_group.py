@@ -75,6 +75,8 @@ def test_every_report_names_the_reference_and_its_rule(clinics):
     assert chosen.groups[0].label == "Kleinwald" and not any("the reference group (" in w for w in chosen.warnings)
     compared = cfa_tool.compare([MODEL + "invariance scalar\n", MODEL + "invariance metric\n"], clinics, group="clinic")
     assert any(said in n for n in compared.notes)
+    scored = cfa_tool.scores(MODEL + "invariance scalar\n", clinics, group="clinic")
+    assert any(said in w for w in scored.fit.warnings)
     aligned = cfa_tool.align(MODEL, clinics, "clinic", trials=0)
     assert aligned.reference_group == "Nordhafen"
     assert f"Reference group: {said}" in " ".join(aligned.summary().split())
