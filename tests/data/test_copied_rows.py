@@ -77,6 +77,8 @@ def test_a_file_appended_to_itself_is_named_first_by_fit_check_compare_and_invar
     assert ProblemKind.COPIED_ROWS in _kinds(compared.problems)
     ladder = cfa_tool.invariance(MODEL, path, group="district")
     assert any("identical in every column to an earlier row" in w for w in ladder.warnings)
+    explored = cfa_tool.explore(path, items=[f"y{j}" for j in range(1, 7)], factors=1)
+    assert _kinds(explored.data_problems)[0] is ProblemKind.COPIED_ROWS
     clean = tmp_path / "once.csv"
     riders.to_csv(clean, index=False)
     assert ProblemKind.COPIED_ROWS not in _kinds(cfa_tool.fit(MODEL, clean).problems)
