@@ -71,6 +71,8 @@ def copied_rows(frame: pd.DataFrame, row_numbers: np.ndarray, block: np.ndarray 
         return None
     rows = np.arange(len(frame))
     if block is not None and block.shape[0] == len(frame) and block.shape[1]:
+        if not _some_alike(block):
+            return None  # no row repeats an earlier row's items: the common case, one product and one sort
         original = _first_alike(block)
         rows = np.flatnonzero(original != np.arange(len(frame)))
         if not len(rows):
@@ -99,6 +101,22 @@ def copied_rows(frame: pd.DataFrame, row_numbers: np.ndarray, block: np.ndarray 
     numbers = row_numbers[rows]
     return CopiedRows(tuple(int(r) for r in numbers[copies]), tuple(int(r) for r in numbers[original[copies]]),
                       compared.shape[1], None if numbering is None else str(numbering))
+
+
+#: fixed odd multipliers of the items' bits in a row's screening sum (any numbers do: equal rows have equal sums,
+#: and a pair of unequal rows with equal sums is only compared cell by cell for nothing)
+_SCREEN = np.random.default_rng(20261203).integers(1, 2**62, size=256, dtype=np.uint64) * np.uint64(2) + np.uint64(1)
+
+
+def _some_alike(block: np.ndarray) -> bool:
+    """Whether two rows of ``block`` may be equal: two equal sums of their values' bits times fixed multipliers,
+    in integer arithmetic, whose sums do not depend on their order (a screen, cheaper than sorting the rows; False
+    means that no two rows are equal)."""
+    k = block.shape[1]
+    weights = _SCREEN[:k] if k <= len(_SCREEN) else np.resize(_SCREEN, k)
+    bits = (np.where(np.isnan(block), np.nan, block) + 0.0).view(np.uint64)  # one NaN, and -0.0 as 0.0
+    sums = np.sort((bits * weights).sum(axis=1, dtype=np.uint64))
+    return bool((sums[1:] == sums[:-1]).any())
 
 
 def _first_alike(block: np.ndarray) -> np.ndarray:
