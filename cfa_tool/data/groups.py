@@ -62,14 +62,14 @@ class ReferenceRule(Enum):
     GIVEN = ("given", "as chosen")
     FIRST_CATEGORY = ("first category", "the first category of the column's categories")
     LOWEST_CODE = ("lowest code", "the group of the lowest code")
-    LARGEST = ("largest", "the largest group")
+    FIRST_LABEL = ("first label", "the first label in sorted order")
 
 
 def default_reference(frame: pd.DataFrame, column: str, labels: list[str]) -> tuple[str, ReferenceRule]:
     """The reference group when none is chosen, by one rule for every command with groups: of a pandas categorical
     column (ordered or not), its first category that has rows; of a column of codes with value labels (SPSS, Stata),
-    the group of the lowest code; otherwise the largest group, whose means are estimated most precisely (ties: the
-    first in the order of the labels, ``labels`` as :func:`group_labels` orders them)."""
+    the group of the lowest code; otherwise the first label in sorted order (``labels`` as :func:`group_labels`
+    orders them: numbers by value, text alphabetically)."""
     cells = frame[column]
     if isinstance(cells.dtype, pd.CategoricalDtype):
         present = set(labels)
@@ -79,9 +79,7 @@ def default_reference(frame: pd.DataFrame, column: str, labels: list[str]) -> tu
     coded = [label for label in code_order(frame, column).values() if label in labels]
     if coded:
         return coded[0], ReferenceRule.LOWEST_CODE
-    counts = cells.dropna().map(_label).value_counts()
-    most = max(int(counts.get(label, 0)) for label in labels)
-    return next(label for label in labels if int(counts.get(label, 0)) == most), ReferenceRule.LARGEST
+    return labels[0], ReferenceRule.FIRST_LABEL
 
 
 def reference_words(label: str, rule: ReferenceRule) -> str:
@@ -101,7 +99,7 @@ def reference_rule(frame: pd.DataFrame, column: str, reference: str | None = Non
         return ReferenceRule.GIVEN
     if isinstance(frame[column].dtype, pd.CategoricalDtype):
         return ReferenceRule.FIRST_CATEGORY
-    return ReferenceRule.LOWEST_CODE if code_order(frame, column) else ReferenceRule.LARGEST
+    return ReferenceRule.LOWEST_CODE if code_order(frame, column) else ReferenceRule.FIRST_LABEL
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

@@ -1,6 +1,6 @@
 """The default reference group, one rule for every command with groups (data.groups.default_reference): a pandas
-categorical column's first category, the lowest code of SPSS/Stata value labels, otherwise the largest group (ties:
-the first label in sorted order); every report names it with the rule beside it."""
+categorical column's first category, the lowest code of SPSS/Stata value labels, otherwise the first label in sorted
+order; every report names it with the rule beside it."""
 
 from __future__ import annotations
 
@@ -29,13 +29,13 @@ def clinics() -> pd.DataFrame:
     return _frame({"Kleinwald": 60, "Lindenberg": 299, "Nordhafen": 341})
 
 
-def test_the_largest_group_by_default_and_ties_by_label(clinics):
-    assert group_labels(clinics, "clinic", "x") == ["Nordhafen", "Kleinwald", "Lindenberg"]
-    assert reference_rule(clinics, "clinic") is ReferenceRule.LARGEST
-    tied = _frame({"west": 100, "east": 100, "south": 50})
-    assert default_reference(tied, "clinic", ["east", "south", "west"]) == ("east", ReferenceRule.LARGEST)
-    assert group_labels(clinics, "clinic", "x", reference="Kleinwald")[0] == "Kleinwald"
-    assert reference_rule(clinics, "clinic", "Kleinwald") is ReferenceRule.GIVEN
+def test_the_first_label_by_default(clinics):
+    assert group_labels(clinics, "clinic", "x") == ["Kleinwald", "Lindenberg", "Nordhafen"]
+    assert reference_rule(clinics, "clinic") is ReferenceRule.FIRST_LABEL
+    numbered = _frame({"10": 50, "9": 50})
+    assert default_reference(numbered, "clinic", ["9", "10"]) == ("9", ReferenceRule.FIRST_LABEL)  # numbers by value
+    assert group_labels(clinics, "clinic", "x", reference="Nordhafen")[0] == "Nordhafen"
+    assert reference_rule(clinics, "clinic", "Nordhafen") is ReferenceRule.GIVEN
 
 
 def test_a_categorical_columns_first_category(clinics):
@@ -43,9 +43,9 @@ def test_a_categorical_columns_first_category(clinics):
                                                    ordered=True))
     assert group_labels(ordered, "clinic", "x")[0] == "Lindenberg"
     assert reference_rule(ordered, "clinic") is ReferenceRule.FIRST_CATEGORY
-    unordered = clinics.assign(clinic=pd.Categorical(clinics["clinic"], ["Pinnow", "Kleinwald", "Lindenberg",
-                                                                         "Nordhafen"]))
-    assert group_labels(unordered, "clinic", "x")[0] == "Kleinwald"  # the first category with rows
+    unordered = clinics.assign(clinic=pd.Categorical(clinics["clinic"], ["Pinnow", "Nordhafen", "Kleinwald",
+                                                                         "Lindenberg"]))
+    assert group_labels(unordered, "clinic", "x")[0] == "Nordhafen"  # the first category with rows
 
 
 def test_spss_codes_the_lowest_code(clinics, tmp_path):
@@ -61,22 +61,22 @@ def test_spss_codes_the_lowest_code(clinics, tmp_path):
 
 
 def test_every_report_names_the_reference_and_its_rule(clinics):
-    said = "Nordhafen, the largest group; choose another with reference_group=..."
+    said = "Kleinwald, the first label in sorted order; choose another with reference_group=..."
     ladder = cfa_tool.invariance(MODEL, clinics, group="clinic")
-    assert ladder.groups[0] == "Nordhafen"
+    assert ladder.groups[0] == "Kleinwald"
     assert f"Reference group (factor means fixed at zero): {said}" in " ".join(ladder.summary().split())
-    assert ladder.to_dict()["reference_group_chosen_by"] == "largest"
+    assert ladder.to_dict()["reference_group_chosen_by"] == "first label"
     scalar = cfa_tool.fit(MODEL + "invariance scalar\n", clinics, group="clinic")
-    assert scalar.groups[0].label == "Nordhafen"
+    assert scalar.groups[0].label == "Kleinwald"
     assert any(said in w for w in scalar.warnings)
     # a configural fit, where the reference sets nothing, and a reference chosen by the user: no such note
     assert not any("the reference group (" in w for w in cfa_tool.fit(MODEL, clinics, group="clinic").warnings)
-    chosen = cfa_tool.fit(MODEL + "invariance scalar\n", clinics, group="clinic", reference_group="Kleinwald")
-    assert chosen.groups[0].label == "Kleinwald" and not any("the reference group (" in w for w in chosen.warnings)
+    chosen = cfa_tool.fit(MODEL + "invariance scalar\n", clinics, group="clinic", reference_group="Nordhafen")
+    assert chosen.groups[0].label == "Nordhafen" and not any("the reference group (" in w for w in chosen.warnings)
     compared = cfa_tool.compare([MODEL + "invariance scalar\n", MODEL + "invariance metric\n"], clinics, group="clinic")
     assert any(said in n for n in compared.notes)
     scored = cfa_tool.scores(MODEL + "invariance scalar\n", clinics, group="clinic")
     assert any(said in w for w in scored.fit.warnings)
     aligned = cfa_tool.align(MODEL, clinics, "clinic", trials=0)
-    assert aligned.reference_group == "Nordhafen"
+    assert aligned.reference_group == "Kleinwald"
     assert f"Reference group: {said}" in " ".join(aligned.summary().split())
