@@ -121,6 +121,20 @@ class OptionError(UserInputError):
     """A command-line or API option that cannot be honoured."""
 
 
+class InternalError(Exception):
+    """A bug of the tool found by one of its own consistency checks (rows counted twice, a negative count): not the
+    user's fault, so not a :class:`CfaError`; the command line reports it as an internal error, and no report of
+    nonsense is written."""
+
+
+def check_rows_counted(analysed: int, read: int, where: str) -> None:
+    """Raise :class:`InternalError` unless ``0 <= analysed <= read``: rows analysed (summed over groups, each row in
+    at most one) can be no more than the rows read, and no count of rows is negative."""
+    if not 0 <= analysed <= read or read < 0:
+        raise InternalError(f"{where}: {analysed} rows counted as analysed of {read} read; a row was counted twice or "
+                            f"a count went negative, so no result is given")
+
+
 class EstimationError(CfaError):
     """The model could not be estimated (did not converge, not identified)."""
 

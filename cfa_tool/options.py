@@ -168,6 +168,7 @@ class Option(enum.Enum):
     STANDARD_ERRORS_FROM = ("--standard-errors-from", "information")
     ORDINAL = ("--ordinal", "ordinal")
     WEIGHTS = ("--weights", "weights")
+    WEIGHT_KIND = ("--weight-kind", "weight_kind")
     CLUSTER = ("--cluster", "cluster")
     STRATA = ("--strata", "strata")
     CATEGORIES = ("--categories", "categories")

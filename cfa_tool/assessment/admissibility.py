@@ -57,6 +57,8 @@ class ProblemKind(enum.Enum):
     FEW_CLUSTERS = ("too few clusters", "too few clusters", False)
     # sampling weights so uneven that the rows count as few (Kish's effective sample size)
     SMALL_EFFECTIVE_SAMPLE = ("small effective sample", "small effective sample", False)
+    # frequency weights that make N many times the rows: likely expansion (sampling) weights read as counts
+    FREQUENCY_WEIGHTS_LARGE = ("frequency weights far above the rows", "weights count many rows", False)
     # not of the solution but of the data: values in item columns that look like no answers (data.odd_values)
     VALUES_NOT_ANSWERS = ("values that look like no answers", "values that look like no answers", False)
     # values the data file itself marks as no answer, read as missing (data.non_answers): said, not a problem
@@ -65,6 +67,9 @@ class ProblemKind(enum.Enum):
     SMALL_SAMPLE = ("fewer rows than parameters", "fewer rows than parameters", False)
     # not of the solution but of the data: group labels that differ only in case ('north', 'North'), kept apart
     GROUP_LABELS_BY_CASE = ("group labels differing only in case", "labels differing only in case", False)
+    # the same of a cluster or strata column ('School A', 'school a'): two clusters, so clustering understated
+    DESIGN_LABELS_BY_CASE = ("cluster or stratum labels differing only in case", "labels differing only in case",
+                             False)
     # not of the solution but of the data: an item answered by few of the rows (pipeline.inputs.with_odd_values)
     FEW_ANSWERS = ("item answered by few rows", "answered by few rows", False)
     # not of the solution but of the data: an item answered alike by all rows but a few (the same rule, extended:
@@ -78,6 +83,9 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the data: rows that gave one answer to every item, reverse-worded ones included
     # (data.same_answers), kept in the analysis
     SAME_ANSWER_ROWS = ("same answer to every item", "same answer throughout", False)
+    # not of the data's answers but of its rows: rows identical in every column to an earlier row (data.copied_rows),
+    # kept in the analysis; copies count twice, so N is too large and the standard errors too small
+    COPIED_ROWS = ("rows identical to earlier rows", "copies of rows", False)
     # not of the solution but of the data: a 'reversed ... on MIN to MAX' scale that no answer reaches at one end
     # (pipeline.inputs.scale_ends_problems): the keyed sums' means depend on the scale declared
     SCALE_ENDS_UNREACHED = ("declared scale wider than the answers", "scale ends unreached", False)
@@ -99,7 +107,8 @@ class ProblemKind(enum.Enum):
 
 #: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them
 #: beside the design)
-DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.SMALL_EFFECTIVE_SAMPLE})
+DESIGN_CAUTIONS = frozenset({ProblemKind.FEW_CLUSTERS, ProblemKind.SMALL_EFFECTIVE_SAMPLE,
+                             ProblemKind.FREQUENCY_WEIGHTS_LARGE})
 
 
 #: rows per free parameter a common rule of thumb asks for (Bentler & Chou 1987, recalled from memory: at least 5,
@@ -226,9 +235,13 @@ class Problem:
             K.EMPIRICALLY_UNDERIDENTIFIED: "parameters that the data barely determine",
             K.FEW_CLUSTERS: f"cluster-robust standard errors from only {v.split('.')[0]} clusters",
             K.SMALL_EFFECTIVE_SAMPLE: f"very uneven weights (Kish's effective sample size {v})",
+            K.FREQUENCY_WEIGHTS_LARGE: f"frequency weights counting {v.split('.')[0]} rows, far more than the rows "
+                                       f"analysed (expansion weights read as counts?)",
             K.SMALL_SAMPLE: f"fewer rows ({v.split('.')[0]}) than free parameters of the model",
             K.GROUP_LABELS_BY_CASE: "group labels that differ only in upper and lower case, analysed as different "
                                     "groups",
+            K.DESIGN_LABELS_BY_CASE: "cluster or stratum labels that differ only in upper and lower case, analysed "
+                                     "as different clusters or strata",
             K.VALUES_NOT_ANSWERS: "values in the data that look like no answers (a missing-value code or a totals row)",
             K.VALUES_READ_AS_MISSING: "values that the data file marks as no answer (by their value labels, as declared "
                                       "missing values, or as text such as 'refused') were treated as missing",
@@ -242,6 +255,7 @@ class Problem:
             K.GROUP_WEIGHTED_OUT: "a group every row of which has weight 0, left out of the analysis",
             K.UNKNOWN_GROUPS_SCORED: "rows in groups the earlier fit does not have, which get no scores",
             K.ANSWERS_BEYOND_FITTED: "answers outside the range of the rows the earlier fit analysed",
+            K.COPIED_ROWS: f"{v.split('.')[0]} rows identical in every column to earlier rows (kept in the analysis)",
             K.SAME_ANSWER_ROWS: "rows that gave the same answer to every item, reverse-worded ones included (kept in "
                                 "the analysis)",
             K.FACTOR_POINTS_AGAINST_ITEMS: f"factor {', '.join(names)} pointing against its items (a higher score "

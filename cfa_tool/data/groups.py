@@ -2,13 +2,15 @@
 
 from __future__ import annotations
 
+from enum import Enum
+
 import numpy as np
 import pandas as pd
 
 from cfa_tool.data.labels import code_order, label_text, ordered_labels
 from cfa_tool.suggest import close_names
 from cfa_tool.data.moments import SampleMoments, sample_moments
-from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.errors import DataError, OptionError, check_rows_counted, printable
 from cfa_tool.method import MissingData
 
 
@@ -31,18 +33,73 @@ def group_labels(frame: pd.DataFrame, column: str, source: str, reference: str |
     if len(labels) < 2:
         only = f" ('{labels[0]}')" if labels else ""
         raise DataError(f"{source}: the group column '{column}' has only {len(labels)} group{only}; a multi-group analysis needs at least two")
-    if reference is not None:
+    if reference is None:
+        reference, _ = default_reference(frame, column, labels)
+    else:
         reference = label_text(reference) if isinstance(reference, str) else reference  # read as the labels are
         if reference not in labels:  # a labelled column's group may be given by its code, as row filters take it
             reference = code_order(frame, column).get(label_text(reference), reference)
         if reference not in labels:
             raise OptionError(f"{source}: '{reference}' is not a group of column '{column}' (groups: {', '.join(labels)})")
-        labels.remove(reference)
-        labels.insert(0, reference)
+    labels.remove(reference)
+    labels.insert(0, reference)  # the reference group first, the others in the order of their labels
     return labels
 
 
 _label = label_text
+
+
+class ReferenceRule(Enum):
+    """Why a group is the reference group (its factor means fixed at zero, the others' means differences from it):
+    ``value`` the word of the JSON, ``phrase`` the words beside the group's name in every report."""
+
+    def __new__(cls, word: str, phrase: str):
+        member = object.__new__(cls)
+        member._value_ = word
+        member.phrase = phrase
+        return member
+
+    GIVEN = ("given", "as chosen")
+    FIRST_CATEGORY = ("first category", "the first category of the column's categories")
+    LOWEST_CODE = ("lowest code", "the group of the lowest code")
+    FIRST_LABEL = ("first label", "the first label in sorted order")
+
+
+def default_reference(frame: pd.DataFrame, column: str, labels: list[str]) -> tuple[str, ReferenceRule]:
+    """The reference group when none is chosen, by one rule for every command with groups: of a pandas categorical
+    column (ordered or not), its first category that has rows; of a column of codes with value labels (SPSS, Stata),
+    the group of the lowest code; otherwise the first label in sorted order (``labels`` as :func:`group_labels`
+    orders them: numbers by value, text alphabetically)."""
+    cells = frame[column]
+    if isinstance(cells.dtype, pd.CategoricalDtype):
+        present = set(labels)
+        first = next((label_text(c) for c in cells.cat.categories if label_text(c) in present), None)
+        if first is not None:
+            return first, ReferenceRule.FIRST_CATEGORY
+    coded = [label for label in code_order(frame, column).values() if label in labels]
+    if coded:
+        return coded[0], ReferenceRule.LOWEST_CODE
+    return labels[0], ReferenceRule.FIRST_LABEL
+
+
+def reference_words(label: str, rule: ReferenceRule) -> str:
+    """The reference group and why, as every report says it beside the group's name: "north, the largest group;
+    choose another with --reference-group" (a group chosen by the user: its name alone)."""
+    from cfa_tool.options import Option
+
+    if rule is ReferenceRule.GIVEN:
+        return label
+    return f"{label}, {rule.phrase}; choose another with {Option.REFERENCE_GROUP}"
+
+
+def reference_rule(frame: pd.DataFrame, column: str, reference: str | None = None) -> ReferenceRule:
+    """Why the first group of ``column`` is the reference group: chosen (``reference`` given), or which branch of
+    :func:`default_reference` chose it."""
+    if reference is not None:
+        return ReferenceRule.GIVEN
+    if isinstance(frame[column].dtype, pd.CategoricalDtype):
+        return ReferenceRule.FIRST_CATEGORY
+    return ReferenceRule.LOWEST_CODE if code_order(frame, column) else ReferenceRule.FIRST_LABEL
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
@@ -57,7 +114,15 @@ def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], sour
         part = frame.loc[(keys == label).to_numpy()]
         out.append((label, sample_moments(part, names, source, group=f"'{label}' of {column}", missing=missing,
                                           weights=weights)))
-    return out, int(keys.isna().sum())
+    return out, _without_group(out, keys, frame, column)
+
+
+def _without_group(groups: list, keys: pd.Series, frame: pd.DataFrame, column: str) -> int:
+    """The rows with no group label, after checking that the groups' rows and those rows are no more than the rows
+    of ``frame`` (each row in one group at most: errors.check_rows_counted)."""
+    without = int(keys.isna().sum())
+    check_rows_counted(sum(m.rows_read for _, m in groups) + without, len(frame), f"the groups of column '{column}'")
+    return without
 
 
 def split_ordinal_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,

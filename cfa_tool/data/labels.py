@@ -61,6 +61,11 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
         notes.append(f"the {part} column '{printable(column)}' holds codes with value labels in the data file; its "
                      f"{unit}s are named by those labels ({listed}"
                      + (f" and {len(pairs) - shown} more" if len(pairs) > shown else "") + ")")
+        for label, codes in shared_labels(coded):
+            said = ", ".join(printable(c) for c in codes[:-1]) + f" and {printable(codes[-1])}"
+            notes.append(f"in the {part} column '{printable(column)}', codes {said} carry the same value label "
+                         f"'{printable(label)}' and were read as one {unit}; if they are different {unit}s, give them "
+                         f"different value labels in the data file")
     spelled = spelled_labels(frame, column, values)
     if spelled:
         notes.append(f"in the {part} column '{printable(column)}', numbers written in different ways were read as one "
@@ -149,6 +154,15 @@ def own_labels(column: str, value_labels: dict) -> bool:
 CODED_LABELS = "coded_labels"
 
 
+def shared_labels(coded: dict[str, str]) -> list[tuple[str, list[str]]]:
+    """The value labels that several codes carry ({code: label} as :func:`code_order` gives it, labels read by
+    :func:`label_text`), each with its codes in code order: [(label, [code, ...])]; such codes are one group."""
+    codes: dict[str, list[str]] = {}
+    for code, label in coded.items():
+        codes.setdefault(label, []).append(code)
+    return [(label, found) for label, found in codes.items() if len(found) > 1]
+
+
 def code_order(frame, column: str) -> dict[str, str]:
     """{code as text: label} of a column read as its value labels, in code order ({} for other columns)."""
     return frame.attrs.get(CODED_LABELS, {}).get(column, {})
@@ -157,7 +171,8 @@ def code_order(frame, column: str) -> dict[str, str]:
 def ordered_labels(labels, frame, column: str) -> list[str]:
     """Group labels in a reader's order: a labelled column's by its codes; numbers by value; other text sorted."""
     labels = set(labels)
-    coded = [label for label in code_order(frame, column).values() if label in labels]
+    # two codes with one label (1 and 3 both 'north') are one group, named once (said by :func:`label_notes`)
+    coded = list(dict.fromkeys(label for label in code_order(frame, column).values() if label in labels))
     rest = labels - set(coded)
 
     def number(text: str):

@@ -259,6 +259,20 @@ class SampleDesign:
                 f"on the heavily weighted rows and their standard errors are as large as those of a sample of about "
                 f"{self.effective_n:.0f} rows.")
 
+    def frequency_caution(self) -> str | None:
+        """Why frequency weights that make N more than :data:`EXPANSION_RATIO` times the rows look like survey
+        expansion weights (persons in the population each respondent stands for: sampling weights), which as counts
+        make N and the chi-square huge and the standard errors far too small (None otherwise)."""
+        if (self.columns.weights is None or self.columns.kind is not WeightKind.FREQUENCY or not self.rows
+                or self.sum_of_weights is None or self.sum_of_weights <= EXPANSION_RATIO * self.rows):
+            return None
+        return (f"The frequency weights in '{self.columns.weights}' count {self.sum_of_weights:,.0f} rows from the "
+                f"{self.rows:,} rows analysed ({self.sum_of_weights / self.rows:,.0f} per row on average), so N is "
+                f"{self.sum_of_weights:,.0f} and the standard errors and test are those of a sample that large. "
+                f"Weights that make N more than {EXPANSION_RATIO} times the rows (a rule of thumb of this tool, not a "
+                f"law) are usually survey expansion weights (the persons in the population each respondent stands "
+                f"for), which are sampling weights, not counts of identical rows.")
+
     def caution(self, free_parameters: int) -> str | None:
         """Why cluster-robust standard errors are in doubt with this few clusters (None with enough of them): too
         optimistic below about 30-50 clusters (common practice), and singular with no more clusters than free
@@ -279,6 +293,9 @@ LONE_STRATA_NAMED = 5
 #: the weights (Kish 1992), above 2): weights so uneven that a caution says so (a rule of thumb of survey practice,
 #: recalled from memory, not from a source checked here)
 UNEVEN_WEIGHTS_SHARE = 0.5
+#: frequency weights that make N more than this many times the rows analysed look like survey expansion weights (a
+#: rule of thumb of this tool: a row standing for 20 identical respondents is rare in questionnaire data)
+EXPANSION_RATIO = 20
 
 
 def design_columns(weights: str | None = None, cluster: str | None = None, strata: str | None = None,

@@ -30,7 +30,7 @@ from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_m
                                          summary_moments)
 from cfa_tool import options as opt
 from cfa_tool.options import Option, option_in_both, own_keywords
-from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, printable
+from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, check_rows_counted, printable
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.pipeline.continuous import FitOptions, fit_moments
 from cfa_tool.language.parser import MODEL_SUFFIX, parse_model, read_model_file
@@ -369,7 +369,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
                                             ordinal_estimator, design, ids), by_row)
     reference_group_applies(result, reference_group)
     result = with_missing_reading(with_odd_values(result, loaded, group, spec, design, by_row), loaded, missing_codes)
-    repeated = duplicate_note(ids, "id column" if id_column is not None else "row names")
+    repeated = reference_note(result, frame, group, reference_group) + duplicate_note(
+        ids, "id column" if id_column is not None else "row names")
     return replace(result, warnings=result.warnings + tuple(repeated)) if repeated else result
 
 
@@ -383,19 +384,39 @@ def reference_group_applies(results, reference_group: str | None) -> None:
     or fixed alike: the factor means fixed at zero in every group, as a configural model has them) is an option
     that cannot apply: an error, not a silently reordered report.  ``results``: one fit, or the fits compared."""
     results = results if isinstance(results, (list, tuple)) else (results,)
-    if reference_group is None or not any(r.multigroup for r in results):
+    if reference_group is None or not any(r.multigroup for r in results) or reference_sets_something(results):
         return
-    for result in results:
-        patterns: dict = {}
-        for r in result.estimates:
-            patterns.setdefault(r.group, set()).add((r.kind, r.variables, r.free, None if r.free else r.estimate))
-        if len({frozenset(p) for p in patterns.values()}) > 1:
-            return
     raise OptionError(f"{Option.REFERENCE_GROUP.given(printable(reference_group))} sets nothing in "
                       f"{'this model' if len(results) == 1 else 'these models'}: every group's factor means are fixed "
                       f"at zero and no other parameter is set by the reference group; it applies when factor means "
                       f"are estimated (intercepts held equal, as 'invariance scalar' or the invariance command hold "
                       f"them): leave it out")
+
+
+def reference_sets_something(results) -> bool:
+    """Whether the reference group sets anything in any of these fits in groups: some group's parameters are free or
+    fixed unlike another's (the factor means fixed at zero in the reference group alone)."""
+    for result in results:
+        patterns: dict = {}
+        for r in result.estimates:
+            patterns.setdefault(r.group, set()).add((r.kind, r.variables, r.free, None if r.free else r.estimate))
+        if len({frozenset(p) for p in patterns.values()}) > 1:
+            return True
+    return False
+
+
+def reference_note(results, frame: pd.DataFrame, group: str | None, reference_group: str | None) -> list[str]:
+    """The note naming the reference group of fits in groups and the rule that chose it (data.groups: the first
+    category, the lowest code or the largest group) when the user chose none and it sets something (the other
+    groups' factor means are differences from it); [] otherwise."""
+    results = results if isinstance(results, (list, tuple)) else (results,)
+    if (group is None or reference_group is not None or not results or not results[0].multigroup
+            or not reference_sets_something(results)):
+        return []
+    from cfa_tool.data.groups import reference_rule, reference_words
+
+    return [f"the reference group (its factor means fixed at zero, the other groups' means differences from it) is "
+            f"{reference_words(results[0].groups[0].label, reference_rule(frame, group))}"]
 
 
 def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
@@ -465,8 +486,13 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
     (:func:`group_case_problems`) first."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
-    if group is not None:
-        return (weighted_out_problems(loaded.frame, group, design) + group_case_problems(loaded.frame, group)
+    if group is not None or (design is not None and (design.cluster or design.strata)):
+        design_columns = ((("cluster", ("cluster", "clusters"), design.cluster),
+                           ("strata", ("stratum", "strata"), design.strata)) if design is not None else ())
+        return (weighted_out_problems(loaded.frame, group, design)
+                + (group_case_problems(loaded.frame, group) if group is not None else ())
+                + tuple(p for part, unit, name in design_columns if name is not None
+                        for p in group_case_problems(loaded.frame, name, part, unit))
                 + odd_value_problems(loaded))
 
     marked = non_answer_caution(loaded.non_answers, loaded.source,
@@ -483,10 +509,12 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
         for odd in loaded.cautions + odd)
 
 
-def group_case_problems(frame: pd.DataFrame, group: str) -> tuple:
+def group_case_problems(frame: pd.DataFrame, group: str, part: str = "group",
+                        unit: tuple[str, str] = ("group", "groups")) -> tuple:
     """A caution naming the labels of the group column that differ only in upper and lower case ('north' and
     'North'), with the rows of each: they are analysed as different groups, and only the user knows whether they
-    are one (they are not merged silently, as labels differing by spaces at their ends are)."""
+    are one (they are not merged silently, as labels differing by spaces at their ends are); with ``part`` and
+    ``unit`` (one, several) the same rule for a cluster or strata column ('School A' and 'school a' are two clusters)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.data.labels import case_variants
 
@@ -496,12 +524,18 @@ def group_case_problems(frame: pd.DataFrame, group: str) -> tuple:
     if not found:
         return ()
     listed = "; ".join(" and ".join(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in variants)
-                       for variants in found)
-    return (Problem(ProblemKind.GROUP_LABELS_BY_CASE, (), float(len(found)),
-                    f"In the group column '{printable(group)}', labels that differ only in upper and lower case are "
-                    f"analysed as different groups: {listed}.",
-                    "if they are one group, recode the column so that they are written alike; if they are different "
-                    "groups, give them labels that differ in more than case."),)
+                       for variants in found[:CASE_VARIANTS_SHOWN])
+    more = len(found) - CASE_VARIANTS_SHOWN
+    listed += f"; and {more} more such set{'s' if more != 1 else ''}" if more > 0 else ""
+    kind = ProblemKind.GROUP_LABELS_BY_CASE if part == "group" else ProblemKind.DESIGN_LABELS_BY_CASE
+    return (Problem(kind, (), float(len(found)),
+                    f"In the {part} column '{printable(group)}', labels that differ only in upper and lower case are "
+                    f"analysed as different {unit[1]}: {listed}.",
+                    f"if they are one {unit[0]}, recode the column so that they are written alike; if they are "
+                    f"different {unit[1]}, give them labels that differ in more than case."),)
+
+
+CASE_VARIANTS_SHOWN = 5  # sets of labels differing only in case that a caution names before 'and N more'
 
 
 def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answers: tuple = (),
@@ -518,18 +552,19 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
                   design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
                   coverage: dict | None = None, n_obs: int | None = None) -> tuple:
     """The cautions on the data that come first in every view, composed here once for every command (fit, check,
-    compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: a 'reversed' statement's
+    compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: rows that are copies of
+    earlier rows (:func:`copied_row_problems`); a 'reversed' statement's
     declared scale that no answer reaches (:func:`scale_ends_problems`) and rows with one answer throughout
     (:func:`same_answer_problems`, ``ids``: data-row number -> id), both with a ``spec`` that declares reversed
     items; the groups the weights leave out, group labels differing by case and values that look like no answers
     (:func:`odd_value_problems`); items answered by few rows (``coverage``: item -> share of the ``n_obs`` rows
     analysed answering it) and nearly constant items (:func:`few_answers_problems`) among ``names`` (the model's
     items by default).  The data are not refused: the user may know better."""
-    found: tuple = ()
+    names = names if names is not None else (spec.observed_names if spec is not None else ())
+    found: tuple = copied_row_problems(loaded, group, design, names, ids or {})
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
-        found = scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
-    names = names if names is not None else (spec.observed_names if spec is not None else ())
+        found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
     found += odd_value_problems(loaded, group, design) + few_answers_problems(names, coverage or {}, n_obs, loaded,
                                                                               group)
     return tuple(dict.fromkeys(found))  # each once
@@ -545,6 +580,59 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: 
                                            coverage, getattr(result, "n_obs", None))
                   if p not in result.problems)
     return replace(result, problems=found + tuple(result.problems)) if found else result
+
+
+COPIED_ROWS_SHOWN = 5  # pairs of a copied row and its original that the caution names before 'and N more'
+#: in a file of the model's answers alone (no id, date or other column), respondents who answered alike look like
+#: copies (in simulated answers on 1 to 5 to six items, 26 of 300 rows repeated an earlier one by chance); their
+#: identical rows are named only when at least this many consecutive rows repeat consecutive earlier rows in order,
+#: as rows pasted twice or a file appended to itself leave them (a rule of thumb of this project, not a published one)
+COPIED_RUN_OF_ANSWERS_ALONE = 5
+
+
+def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignColumns | None, names: tuple[str, ...],
+                        ids: dict) -> tuple:
+    """A caution naming the rows analysed that are identical in every column of the file to an earlier row (a
+    row-number column left out: data.copied_rows), by row number and id (``ids``: row number -> id), the first
+    :data:`COPIED_ROWS_SHOWN` pairs; () when there are none.  In a file holding only the model's items and the
+    group and design columns, identical rows may be respondents who answered alike: named only when
+    :data:`COPIED_RUN_OF_ANSWERS_ALONE` of them or more in a row repeat earlier rows in the same order."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.copied_rows import copied_rows
+
+    frame = _labelled(loaded.frame, group)
+    items = [x for x in names if x in frame.columns]
+    block = loaded.items.of(loaded.frame, items) if loaded.items is not None else None  # taken out once per fit
+    if block is None and items:
+        block = item_values(frame, tuple(items))
+    elif block is not None and frame is not loaded.frame:
+        block = block[loaded.frame[group].notna().to_numpy()]  # the rows _labelled keeps
+    found = copied_rows(frame, row_numbers(frame), block)
+    if found is None:
+        return ()
+    described = set(names) | {group} | {name for _, name in (design.names if design is not None else ())}
+    if not set(frame.columns) - described - {found.numbering} and found.longest_run() < COPIED_RUN_OF_ANSWERS_ALONE:
+        return ()
+
+    def row(r: int) -> str:
+        return f"row {r}" + (f" ({printable(ids[r])})" if ids.get(r) is not None else "")
+
+    n = len(found)
+    pairs = "; ".join(f"{row(c)} repeats {row(o)}" for c, o in list(zip(found.copies, found.originals))[:COPIED_ROWS_SHOWN])
+    more = f"; and {n - COPIED_ROWS_SHOWN} more" if n > COPIED_ROWS_SHOWN else ""
+    numbering = f" but the row-number column '{printable(found.numbering)}'" if found.numbering else ""
+    example = ""
+    if found.numbering and set(found.copies) == set(row_numbers(frame)[len(frame) - n:].tolist()):  # a block at the end
+        first = frame[found.numbering].iloc[len(frame) - n]
+        example = f" (here {Option.KEEP.given(f'{printable(found.numbering)} < {label_text(first)}')})"
+    return (Problem(ProblemKind.COPIED_ROWS, (), float(n),
+                    f"{n} of the {len(frame)} rows analysed {'is' if n == 1 else 'are'} identical in every column"
+                    f"{numbering} to an earlier row: {pairs}{more}. If they are copies (a file appended to itself, "
+                    f"rows pasted twice), each is counted as another respondent, so N is too large, the standard "
+                    f"errors too small and the chi-square too large.",
+                    f"delete the copies in a copy of the data file and analyse that, or leave them out with "
+                    f"{Option.KEEP} on a column that tells them apart{example}; if they are different respondents "
+                    f"who answered alike, nothing needs to change."),)
 
 
 SAME_ANSWER_ROWS_SHOWN = 10  # rows a caution about same-answer rows names before 'and N more'
@@ -776,6 +864,7 @@ def with_rows_read(result: FitResult, loaded: LoadedData) -> FitResult:
     """``result`` (a fit of rows with groups or a sampling design) counting as read the rows without a group label
     and the rows of weight 0 (each said in a note), so that the methods paragraph gives the rows left out of all
     the rows read, as ``fit``, ``compare`` and ``invariance`` read them."""
+    check_rows_counted(result.data.rows_read, len(loaded.frame), f"{loaded.source}: the rows of the groups")
     if result.data.rows_read == len(loaded.frame):
         return result
     return replace(result, data=replace(result.data, rows_read=len(loaded.frame),
@@ -908,7 +997,8 @@ def design_test(fit_options, design: DesignColumns):
 def design_problems(design, free: int) -> tuple:
     """The cautions of a sampling ``design`` (data.sample_design.SampleDesign) on a model of ``free`` parameters,
     first in every view, the same for fit, check, compare and invariance: too few clusters for cluster-robust
-    standard errors, and weights so uneven that Kish's effective sample size is below half the rows."""
+    standard errors, weights so uneven that Kish's effective sample size is below half the rows, and frequency
+    weights so large that they look like expansion (sampling) weights (first)."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     problems: tuple = ()
@@ -917,6 +1007,13 @@ def design_problems(design, free: int) -> tuple:
         problems += (Problem(ProblemKind.FEW_CLUSTERS, (), float(design.clusters), caution,
                              "read the p-values with caution, or fit without --cluster and say that rows are nested in "
                              "clusters."),)
+    counts = design.frequency_caution()
+    if counts:  # N itself is in doubt: first
+        problems = (Problem(ProblemKind.FREQUENCY_WEIGHTS_LARGE, (), float(design.sum_of_weights), counts,
+                            f"if they are expansion or other sampling weights, leave out "
+                            f"{Option.WEIGHT_KIND.given(WeightKind.FREQUENCY.value)}: weights are read as sampling "
+                            f"weights by default, rescaled to the rows, with sandwich standard errors; if every row "
+                            f"really stands for that many identical respondents, nothing needs to change."),) + problems
     uneven = design.weight_caution()
     if uneven:
         problems += (Problem(ProblemKind.SMALL_EFFECTIVE_SAMPLE, (), round(float(design.effective_n), 1), uneven,

@@ -12,7 +12,7 @@ from cfa_tool.assessment.fit_indices import FitIndices, IndicesToRead
 from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
 from cfa_tool.data.kept_rows import RowNaming, rows_listed
-from cfa_tool.errors import EstimationError
+from cfa_tool.errors import EstimationError, check_rows_counted
 from cfa_tool.language.names import names_text
 from cfa_tool.method import FitMethod
 from cfa_tool.numerics.plain import clean, plain_array
@@ -231,6 +231,12 @@ class DataSummary:
     reading: object | None = None
     # how the rows are named (data.kept_rows.RowNaming: a file's row numbers, a data frame's index labels)
     row_naming: RowNaming = RowNaming.FILE_ROW
+
+    def __post_init__(self) -> None:
+        """No count of rows is negative and none exceeds the rows read (errors.check_rows_counted): a report of
+        '-325 of 480 rows' is a bug, stopped here."""
+        check_rows_counted(self.without_group, self.rows_dropped, f"{self.source}: the rows without a group label")
+        check_rows_counted(self.rows_dropped, self.rows_read, f"{self.source}: the rows left out")
 
     @property
     def pair_range(self) -> tuple[int, int] | None:

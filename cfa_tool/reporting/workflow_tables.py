@@ -10,6 +10,7 @@ from dataclasses import replace
 from cfa_tool.assessment.admissibility import (DESIGN_CAUTIONS, ProblemKind, design_cautions, failure_words,
                                                not_admissible_sentence)
 from cfa_tool.data.sample_design import SMALL_NUMBER_OF_CLUSTERS
+from cfa_tool.data.groups import reference_words
 from cfa_tool.language.names import names_text
 from cfa_tool.model.description import label_words, parameter_words
 from cfa_tool.options import Option
@@ -561,7 +562,8 @@ def invariance_report(result) -> Report:
                                                                 poor_fit=False)))
     notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else CHECK_SOLUTIONS, warnings,
                                                      inadmissible)
-    lines = (f"Reference group (factor means fixed at zero): {result.groups[0]}",
+    lines = ("Reference group (factor means fixed at zero): " + (result.groups[0] if result.reference_rule is None else
+                                                               reference_words(result.groups[0], result.reference_rule)),
              f"{first.n_obs} rows analysed ({', '.join(f'{g.label}: {g.data.n_obs}' for g in first.groups)}); "
              f"estimation: {first.estimator}",
              *_design_lines(first),

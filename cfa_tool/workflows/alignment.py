@@ -47,6 +47,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
+from cfa_tool.data.groups import reference_rule
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
 from cfa_tool.language.spec import ScaleSetting, Spec
@@ -520,6 +521,7 @@ class AlignmentResult(Presentable):
     check: TrustCheck | None
     warnings: tuple[str, ...]  # cautions about the aligned means, shown first
     notes: tuple[str, ...] = ()  # what else the reader should know (groups turned round, the estimated reference mean)
+    reference_rule: object = None  # why the first group is the reference (data.groups.ReferenceRule)
 
     @property
     def reference_group(self) -> str:
@@ -552,6 +554,7 @@ class AlignmentResult(Presentable):
             "group_column": self.group_column,
             "groups": [{"group": g, "rows": n} for g, n in zip(self.groups, self.sizes)],
             "reference_group": self.reference_group,
+            "reference_group_chosen_by": self.reference_rule.value if self.reference_rule is not None else None,
             "reference_mean": {"name": self.reference_mean.value, "description": self.reference_mean.phrase},
             "standard_errors": STANDARD_ERRORS,
             "flagging": {"level": self.flag_level, "procedure": FLAGGING},
@@ -667,7 +670,7 @@ def _align(spec: Spec, frame: pd.DataFrame, source: str, group: str, reference_g
                   f"alone (standard error {f.groups[0].mean_se:.3f}); when it is poorly determined, the reference "
                   f"mean of zero gives the better comparison (the method's authors' advice, recalled)" for f in factors]
     result = AlignmentResult(configural, group, labels, tuple(int(n) for n in sizes), variant, flag_level,
-                             tuple(factors), trust, (), tuple(notes))
+                             tuple(factors), trust, (), tuple(notes), reference_rule(frame, group, reference_group))
     return replace(result, warnings=tuple(_cautions(result)))
 
 

@@ -10,7 +10,8 @@ import pandas as pd
 
 from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missing_handling, design_test, few_category_notes, load_spec, make_options, moments_for,
                                       missing_codes_option, of_summary_statistics,
-                                      data_problems, odd_values_named, reference_group_applies, with_missing_reading,
+                                      data_problems, odd_values_named, reference_group_applies, reference_note,
+                                      with_missing_reading,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_ordinal_for_summary, refuse_row_options, summary_source, with_design)
 from cfa_tool.data.answer_words import (code_answer_words, coding_json, refuse_different_codings,
@@ -188,6 +189,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                      replace(fit_options, missing=None if pairwise else MissingData.LISTWISE),
                                      ordinal_items, ordinal_estimator, dropped, design, pairwise, notes)
             reference_group_applies(found.results, reference_group)
+            found = replace(found, notes=tuple(found.notes) + tuple(reference_note(found.results, complete, group,
+                                                                                   reference_group)))
             found = _some_estimated(_with_data_problems(found, loaded, specs, group, design, dropped, pairwise, True))
             return replace(found, results=tuple(with_missing_reading(r, loaded, missing_codes) for r in found.results),
                            without_group=without_group)
@@ -206,6 +209,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             results.append(with_design(result, design_summary(complete, design, [m for _, m in groups]))
                            if design is not None else result)
         reference_group_applies(results, reference_group)
+        notes = list(notes) + reference_note(results, complete, group, reference_group)
         tests, not_nested = _pairwise_tests(specs, names, results, data_groups)
         return _some_estimated(_with_data_problems(Comparison(tuple(names), tuple(results), tuple(tests),
                                                               tuple(not_nested), len(complete), dropped,

@@ -649,7 +649,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     # values that look like no answers among the rows read (both halves of a split): first in every view
     # and items answered alike by all rows but a few, as fit names them (pipeline.inputs.few_answers_problems)
     screened = api.screened(frame, tuple(chosen), source, loaded.non_answers, loaded.cautions)
-    data_problems = api.odd_value_problems(screened) + api.few_answers_problems(tuple(chosen), {}, None, screened)
+    data_problems = (api.copied_row_problems(screened, None, None, tuple(chosen), {})  # rows pasted twice, as fit
+                     + api.odd_value_problems(screened) + api.few_answers_problems(tuple(chosen), {}, None, screened))
     halves = None
     if split is not None:
         split = options.seed(split)

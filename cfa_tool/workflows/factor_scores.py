@@ -356,6 +356,9 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     # the data's cautions as fit gives them (rows that gave one answer to every item, reverse-worded ones included,
     # named by their ids: scored like every row)
     result = api.with_odd_values(result, loaded, group, spec, design, ids_by_row_number(ids, read_frame))
+    chosen_by = api.reference_note(result, frame, group, reference_group)  # as fit names the reference group
+    if chosen_by:
+        result = replace(result, warnings=tuple(result.warnings) + tuple(chosen_by))
     fitted_rows = _fitted_rows(frame, design, spec, group, source)
     if ordinal_items:
         chosen = (ScoreMethod.EXPECTED_A_POSTERIORI,)

@@ -18,6 +18,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.data.answer_words import coding_json
+from cfa_tool.data.groups import reference_rule
 from cfa_tool.options import own_keywords
 from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_category_notes,
                                       make_options, moments_for, data_problems, ordinal_estimator_option,
@@ -225,6 +226,8 @@ class InvarianceResult(Presentable):
     notes: tuple[str, ...] = ()
     #: the cautions on the data (pipeline.inputs.data_problems), whose lines open ``warnings``
     data_problems: tuple = ()
+    #: why the first group is the reference group (data.groups.ReferenceRule: chosen, or the default rule)
+    reference_rule: object = None
 
     def to_dict(self) -> dict:
         first = self.steps[0].result
@@ -233,6 +236,8 @@ class InvarianceResult(Presentable):
             "data_problems": [p.to_dict() for p in self.data_problems],
             "notes": list(self.notes),
             "group_column": self.group_column,
+            "reference_group": self.groups[0],
+            "reference_group_chosen_by": self.reference_rule.value if self.reference_rule is not None else None,
             "groups": list(self.groups),
             "alpha": self.alpha,
             "decision_rule": {"name": self.rule.value, "description": self.rule.description},
@@ -316,6 +321,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         notes = list(missing_notes) + few_category_notes(frame, spec.observed_names) + list(read_notes) + list(notes)
         ladder = NormalLadder(design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
     labels = tuple(label for label, _ in groups)
+    reference = reference_rule(frame, group, reference_group)  # the rule moments_for followed (data.groups)
     threads = blas_threads_for(len(spec.observed_names))  # the fits' matrices are small: one BLAS thread (numerics.threads)
 
     steps: list[InvarianceStep] = []
@@ -353,7 +359,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 left_out, left_notes = _rows_left_out(steps[0].result)
                 return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
                                         data_cautions + tuple(left_out) + (stopped,), rule,
-                                        notes=tuple(notes) + tuple(left_notes), data_problems=found)
+                                        notes=tuple(notes) + tuple(left_notes), data_problems=found,
+                                        reference_rule=reference)
             with threads:
                 test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
             # an inadmissible solution (negative variances, ...) cannot show that invariance holds, whatever its fit;
@@ -447,7 +454,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     # groups with fewer rows than their configural model's free parameters: every step's comparison rests on them
     small = tuple(f"Group {p.group}: {p.line()}" for p in steps[0].result.problems if p.kind is ProblemKind.SMALL_GROUP)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + small + tuple(warnings), rule,
-                            differences, latent_note, not_estimated, tuple(notes), found)
+                            differences, latent_note, not_estimated, tuple(notes), found, reference)
 
 
 #: the keywords of :func:`invariance` besides the fit options it passes on (an unknown keyword's near names,
