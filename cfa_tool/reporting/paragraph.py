@@ -464,6 +464,22 @@ def _sample_phrase(result) -> str:
     return text
 
 
+def _completely_at_random_sentence(result) -> str:
+    """Little's (1988) test of the rows with gaps, in one sentence with the assumption the fit rests on ('' when the
+    fit has no such test)."""
+    from cfa_tool.assessment.missingness import TEST_NAME
+
+    test = getattr(result, "completely_at_random", None)
+    if test is None:
+        return ""
+    figures = f"{CHI}({test.df}) = {test.chi_square:.2f}, {_p(test.p_value)}"
+    if test.p_value < 0.05:
+        return (f"{TEST_NAME} was significant ({figures}), so the answers are not missing completely at random; "
+                f"full-information ML rests on their being missing at random given the items analysed.")
+    return (f"{TEST_NAME} was not significant ({figures}), which does not show that they are; full-information ML "
+            f"needs only that the answers be missing at random given the items analysed.")
+
+
 def _filtered(data) -> str:
     """' of the 301 rows in the data file, those where school was Pasteur': the rows the row filters (--keep) chose,
     each filter worded by RowFilter.in_words ('' without filters)."""
@@ -727,6 +743,9 @@ def methods_paragraph(result) -> str:
     if coding:
         parts.insert(1, coding)
     parts += _design_sentences([result])
+    missingness = _completely_at_random_sentence(result)
+    if missingness:
+        parts.append(missingness)
     inadmissible = not result.admissible
     if inadmissible:
         serious = [p for p in result.problems if p.kind.inadmissible]

@@ -574,8 +574,26 @@ def missing_table(result) -> ReportTable | None:
     weights = summary.get("counted_by_weights")
     if weights:
         note += f". Rows are counted by their frequency weights ('{weights}'), as N is"
+    note += "." + _completely_at_random_note(result)
     return _table("missing", "Missing answers",
                   [("Items not answered", "l"), ("Rows, weighted" if weights else "Rows", "r")], rows, note)
+
+
+def _completely_at_random_note(result) -> str:
+    """Little's test of the fit's rows with gaps (full-information ML), with what it cannot show; '' without it."""
+    from cfa_tool.assessment.missingness import NOT_WITH_DESIGN, READING, TEST_NAME
+
+    test = getattr(result, "completely_at_random", None)
+    if test is None:
+        design = result.method.full_information and getattr(result, "design", None) is not None
+        return f" {NOT_WITH_DESIGN}" if design else ""
+    each = "; ".join(f"group {label}: chi-square {d2:.2f} on {df} df, p {p_phrase(p)}"
+                     for label, d2, df, p in test.groups if df > 0)
+    verdict = ("" if test.p_value >= 0.05 else " The rows with different gaps differ in their answers: the answers "
+               "are not missing completely at random.")
+    return (f" {TEST_NAME} (from the saturated model's EM estimates, over {test.patterns} patterns"
+            f"{', the groups added up' if test.groups else ''}): chi-square {test.chi_square:.2f} on {test.df} df, "
+            f"p {p_phrase(test.p_value)}{f' ({each})' if each else ''}.{verdict} {READING}")
 
 
 def modification_table(result, group: int | None = None, limit: int = 10) -> ReportTable | None:
