@@ -853,6 +853,11 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
                   values=([c for c, _ in columns], values))
 
 
+#: the caution of a table that names rows by their ids (--id): ids identify the people who answered
+IDS_IDENTIFY = ("The ids identify respondents: leave this table out of anything published or shared (the row "
+                "numbers find the same rows in the data file).")
+
+
 def case_table(result, group: int = 0) -> ReportTable | None:
     cases = result.groups[group].influential_cases
     if not cases:
@@ -868,9 +873,10 @@ def case_table(result, group: int = 0) -> ReportTable | None:
               + ([c.model_mahalanobis] if gaps else []) + [c.p_value] for c, i in zip(shown, ids)]
     body = [[str(c.row), *i, num(c.chi_square_share, 2)] + ([str(c.answered)] if gaps else []) + [num(c.mahalanobis, 2)]
             + ([num(c.model_mahalanobis, 2)] if gaps else []) + [p_value(c.p_value)] for c, i in zip(shown, ids)]
-    note = ("Each row's contribution (in chi-square units; negative for a row the model fits better than the saturated "
-            "model does) sums over all rows to the chi-square; large contributions and distances point at rows worth "
-            "checking.")
+    note = ((IDS_IDENTIFY + " ") if named else "") + (
+        "Each row's contribution (in chi-square units; negative for a row the model fits better than the saturated "
+        "model does) sums over all rows to the chi-square; large contributions and distances point at rows worth "
+        "checking.")
     if result.design is not None and result.design.columns.weights:
         note += (f" Under the {result.design.columns.kind.label} each row's contribution is its weight times its own, "
                  "and its distances are from the weighted means and covariances.")
