@@ -30,6 +30,9 @@ READING = ("A non-significant test does not show that the answers are missing co
            "items analysed; a variable that goes with the missingness enters this tool's fit only as a model "
            "variable (an extra item, which changes the model fitted, or the group column): auxiliary variables "
            "beside the model are not offered.")
+#: what a fit of the complete rows only assumes, and where the test is given instead
+LISTWISE_NEEDS = ("Leaving out the rows with gaps (listwise deletion) assumes that the answers are missing completely "
+                  f"at random; {TEST_NAME} is given with full-information ML, the default when answers are missing.")
 #: why a fit with sampling weights, clusters or strata has no test
 NOT_WITH_DESIGN = (f"{TEST_NAME} is not computed with sampling weights, clusters or strata: its chi-square assumes "
                    "independent rows, each counted once (or by its frequency weight).")

@@ -581,10 +581,12 @@ def missing_table(result) -> ReportTable | None:
 
 def _completely_at_random_note(result) -> str:
     """Little's test of the fit's rows with gaps (full-information ML), with what it cannot show; '' without it."""
-    from cfa_tool.assessment.missingness import NOT_WITH_DESIGN, READING, TEST_NAME
+    from cfa_tool.assessment.missingness import LISTWISE_NEEDS, NOT_WITH_DESIGN, READING, TEST_NAME
 
     test = getattr(result, "completely_at_random", None)
     if test is None:
+        if result.method.missing is MissingData.LISTWISE:
+            return f" {LISTWISE_NEEDS}"
         design = result.method.full_information and getattr(result, "design", None) is not None
         return f" {NOT_WITH_DESIGN}" if design else ""
     each = "; ".join(f"group {label}: chi-square {d2:.2f} on {df} df, p {p_phrase(p)}"

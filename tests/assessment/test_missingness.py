@@ -12,7 +12,7 @@ import pytest
 from scipy import optimize, stats
 
 import cfa_tool
-from cfa_tool.assessment.missingness import READING, TEST_NAME, little_distance
+from cfa_tool.assessment.missingness import LISTWISE_NEEDS, READING, TEST_NAME, little_distance
 from cfa_tool.data.patterns import pattern_data
 from cfa_tool.reporting.json_report import to_json
 from cfa_tool.reporting.paragraph import methods_paragraph
@@ -153,7 +153,9 @@ def test_groups_add_up_and_each_group_is_given():
 
 
 def test_listwise_fits_and_sampling_weights_have_no_test():
-    assert cfa_tool.fit(ONE_FACTOR, _frame(), missing="listwise").completely_at_random is None
+    listwise = cfa_tool.fit(ONE_FACTOR, _frame(), missing="listwise")
+    assert listwise.completely_at_random is None
+    assert LISTWISE_NEEDS in missing_table(listwise).note
     weighted = _frame().assign(w=np.linspace(0.5, 1.5, len(ROWS)))
     result = cfa_tool.fit(ONE_FACTOR, weighted, missing="full-information", weights="w", weight_kind="sampling")
     assert result.completely_at_random is None
