@@ -160,3 +160,14 @@ def test_listwise_fits_and_sampling_weights_have_no_test():
     result = cfa_tool.fit(ONE_FACTOR, weighted, missing="full-information", weights="w", weight_kind="sampling")
     assert result.completely_at_random is None
     assert "not computed with sampling weights" in missing_table(result).note
+
+
+def test_frequency_weights_count_each_row_as_often_as_its_weight():
+    # a row of weight k is k identical rows: the test of the weighted rows is the test of the rows repeated
+    counts = np.tile([1, 2, 3], len(ROWS) // 3)
+    weighted = _frame().assign(k=counts.astype(float))
+    repeated = _frame(np.repeat(ROWS, counts, axis=0))
+    by_weight = cfa_tool.fit(ONE_FACTOR, weighted, missing="full-information", weights="k",
+                             weight_kind="frequency").completely_at_random
+    d2, df = _little_by_hand(repeated.to_numpy(), *_ml_moments(repeated.to_numpy()))
+    assert (by_weight.chi_square, by_weight.df) == (pytest.approx(d2, rel=1e-5), df)
