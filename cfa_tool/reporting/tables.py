@@ -585,10 +585,12 @@ def _completely_at_random_note(result) -> str:
 
     test = getattr(result, "completely_at_random", None)
     if test is None:
-        if result.method.missing is MissingData.LISTWISE:
+        if result.method.missing is MissingData.LISTWISE and not result.method.ordinal:
             return f" {LISTWISE_NEEDS}"
-        design = result.method.full_information and getattr(result, "design", None) is not None
-        return f" {NOT_WITH_DESIGN}" if design else ""
+        columns = result.design.columns if getattr(result, "design", None) is not None else None
+        design = columns is not None and (columns.kind is not WeightKind.FREQUENCY or columns.cluster is not None
+                                          or columns.strata is not None)
+        return f" {NOT_WITH_DESIGN}" if result.method.full_information and design else ""
     each = "; ".join(f"group {label}: chi-square {d2:.2f} on {df} df, p {p_phrase(p)}"
                      for label, d2, df, p in test.groups if df > 0)
     verdict = ("" if test.p_value >= 0.05 else " The rows with different gaps differ in their answers: the answers "
