@@ -14,11 +14,14 @@ grouped (data.patterns.PatternData) and Sigma_jj^-1 of every pattern from one pr
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 
-from cfa_tool.data.patterns import PatternData, embedded_inverse
 from cfa_tool.numerics import distributions as dist
+
+if TYPE_CHECKING:
+    from cfa_tool.data.patterns import PatternData
 
 
 #: the test's name in every view (table note, methods paragraph)
@@ -31,7 +34,7 @@ READING = ("A non-significant test does not show that the answers are missing co
            "variable (an extra item, which changes the model fitted, or the group column): auxiliary variables "
            "beside the model are not offered.")
 #: what a fit of the complete rows only assumes, and where the test is given instead
-LISTWISE_NEEDS = ("Leaving out the rows with gaps (listwise deletion) assumes that the answers are missing completely "
+LISTWISE_NEEDS = ("Leaving out the rows with gaps assumes that the answers are missing completely "
                   f"at random; {TEST_NAME} is given with full-information ML, the default when answers are missing.")
 #: why a fit with sampling weights, clusters or strata has no test
 NOT_WITH_DESIGN = (f"{TEST_NAME} is not computed with sampling weights, clusters or strata: its chi-square assumes "
@@ -62,6 +65,8 @@ def little_distance(data: PatternData, mu: np.ndarray, sigma: np.ndarray) -> tup
     """(d^2, df) of Little's (1988) test for one sample's patterns ``data`` and its EM estimates ``mu``, ``sigma``
     (rows weighted by frequency weights count as often as their weight: ``data.counts`` are then sums of weights).
     NaN for d^2 where Sigma is not positive definite."""
+    from cfa_tool.data.patterns import embedded_inverse  # (the report's words alone do not load it)
+
     p = len(mu)
     df = int(data.observed.sum()) - p
     found = embedded_inverse(sigma, data.observed)

@@ -468,11 +468,11 @@ def _sample_phrase(result) -> str:
 def _completely_at_random_sentence(result) -> str:
     """Little's (1988) test of the rows with gaps, in one sentence with the assumption the fit rests on ('' when the
     fit has no such test)."""
-    from cfa_tool.assessment.missingness import TEST_NAME
-
     test = getattr(result, "completely_at_random", None)
     if test is None:
         return ""
+    from cfa_tool.assessment.missingness import TEST_NAME  # (fits without the test do not load it)
+
     figures = f"{CHI}({test.df}) = {test.chi_square:.2f}, {_p(test.p_value)}"
     if test.p_value < 0.05:
         return (f"{TEST_NAME} was significant ({figures}), so the answers are not missing completely at random; "
