@@ -407,11 +407,28 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         ranges = ()
     overall = DataSummary(first.source, sum(m.rows_read for _, m in groups), sum(m.rows_dropped for _, m in groups),
                           n_total, table.observed, item_means, item_sds, ranges=ranges)
+    missingness = (_completely_at_random(likelihood, table.groups if multi else (None,))
+                   if options.diagnostics and not likelihood.complete_data else None)
     return fit_result(spec=spec, method=method, converged=est.converged, iterations=est.iterations, message=est.message,
                       theta=theta, n_obs=n_total, data=overall, observed=table.observed, latent=table.latent, fit=fit,
                       robust=robust, estimates=estimates, modification_indices=mis, groups=group_results,
                       warnings=warnings, options=options, group_column=group_column, problems=problems,
-                      parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels, model=model)
+                      parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels, model=model,
+                      completely_at_random=missingness)
+
+
+def _completely_at_random(likelihood: MissingDataLikelihood, labels):
+    """Little's (1988) test from the full-information likelihood's patterns and EM moments (None with sampling
+    weights, clusters or strata, for which its chi-square reference does not hold: rows are not independent draws
+    counted once each)."""
+    from cfa_tool.assessment.missingness import completely_at_random_test
+
+    designs = [gm.design for gm in likelihood.groups]
+    if any(d is not None and (d.kind is not WeightKind.FREQUENCY or d.clusters is not None or d.strata is not None)
+           for d in designs):
+        return None
+    return completely_at_random_test([(label, data, gm.mean, gm.covariance)
+                                      for label, data, gm in zip(labels, likelihood.patterns, likelihood.groups)])
 
 
 def _entry_standardization(model: StructuredModel) -> list:

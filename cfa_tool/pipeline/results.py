@@ -368,6 +368,8 @@ class FitResult(Presentable):
     parameter_labels: tuple[str, ...] = ()  # one per free parameter
     exploratory: tuple = ()  # exploration.blocks.RotatedBlock per exploratory block of the model
     design: object | None = None  # data.sample_design.SampleDesign: weights, clusters and strata used, if any
+    #: assessment.missingness.CompletelyAtRandomTest: Little's test of rows with gaps under full-information ML
+    completely_at_random: object | None = None
 
     def cov_params(self):
         """The covariance matrix of the free parameters' estimates (the one the standard errors come from:
@@ -493,6 +495,9 @@ class FitResult(Presentable):
             out["reliability"]["scale"] = self.reliability_scale()
             out["diagnostics"] = self.groups[0].diagnostics_dict()
         out["missing_data"] = clean(self.missing_data) if self.missing_data is not None else None
+        if self.completely_at_random is not None:
+            out["missing_data"] = {**(out["missing_data"] or {}),
+                                   "completely_at_random_test": clean(self.completely_at_random.to_dict())}
         out["design"] = clean(self.design.to_dict()) if self.design is not None else None
         if self.labels is not None:
             out["labels"] = {"variables": self.labels["variables"],
@@ -515,14 +520,15 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
                robust: RobustFit | None, estimates, modification_indices, groups, warnings, options,
                group_column: str | None = None, problems: tuple = (), parameter_covariance: np.ndarray | None = None,
                parameter_labels: tuple[str, ...] = (), model=None,
-               unit_variance_items: frozenset[str] = frozenset()) -> FitResult:
+               unit_variance_items: frozenset[str] = frozenset(), completely_at_random=None) -> FitResult:
     """The one place a FitResult is assembled, for every estimator (continuous, incomplete and ordinal
     items, one group or several), from the estimation's and the assessment's pieces.  The model's
     names and text come from ``spec``, the estimator line from ``method``, the display settings of
     modification indices from ``options``.  ``model`` (model.implied.StructuredModel) is needed when the model has
     exploratory blocks: they are rotated here (``unit_variance_items``: the items whose model-implied variance is 1,
     as the latent responses of ordinal items), and the modification indices that name their factors are left out
-    (they would test the unrotated factors, which the report does not show)."""
+    (they would test the unrotated factors, which the report does not show).
+    ``completely_at_random``: Little's test of the rows with gaps (assessment.missingness), when computed."""
     groups = tuple(groups)
     blocks = ()
     if spec.exploratory:
@@ -563,5 +569,5 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         estimates=tuple(estimates), modification_indices=modification_indices, groups=groups,
         group_column=group_column, warnings=tuple(warnings), mi_threshold=options.mi_threshold, mi_top=options.mi_top,
         theta=theta, problems=tuple(problems), parameter_covariance=parameter_covariance,
-        parameter_labels=tuple(parameter_labels), exploratory=blocks,
+        parameter_labels=tuple(parameter_labels), exploratory=blocks, completely_at_random=completely_at_random,
     )

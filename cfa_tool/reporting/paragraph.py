@@ -470,7 +470,8 @@ def _sample_phrase(result) -> str:
     pairs = data.pair_range
     if _pairs_with_gaps(result):
         text += (f"; every answer was used: each item's thresholds from the rows that answered it and each correlation "
-                 f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair{_PAIRWISE_ASSUMPTION}")
+                 f"from the rows that answered both items, {pairs[0]} to {pairs[1]} rows per pair"
+                 f"{_pairs_by_group(result)}{_PAIRWISE_ASSUMPTION}")
     read = _read_as_missing(data)
     if read:
         text += f"; {read}"
@@ -488,6 +489,31 @@ def _sample_phrase(result) -> str:
     if without_group:
         text += _without_group_clause(without_group, data.rows_read, result.group_column)
     return text
+
+
+def _completely_at_random_sentence(result) -> str:
+    """Little's (1988) test of the rows with gaps, in one sentence with the assumption the fit rests on ('' when the
+    fit has no such test)."""
+    test = getattr(result, "completely_at_random", None)
+    if test is None:
+        return ""
+    from cfa_tool.assessment.missingness import TEST_NAME  # (fits without the test do not load it)
+
+    figures = f"{CHI}({test.df}) = {test.chi_square:.2f}, {_p(test.p_value)}"
+    if test.p_value < 0.05:
+        return (f"{TEST_NAME} was significant ({figures}), so the answers are not missing completely at random; "
+                f"full-information ML rests on their being missing at random given the items analysed.")
+    return (f"{TEST_NAME} was not significant ({figures}), which does not show that they are; full-information ML "
+            f"needs only that the answers be missing at random given the items analysed.")
+
+
+def _pairs_by_group(result) -> str:
+    """' over the groups and 40 to 55 in A and 200 to 270 in B': each group's rows per pair of items, where its
+    polychoric correlations were computed ('' for one group)."""
+    ranges = [(g.label, g.data.pair_range) for g in result.groups] if result.multigroup else []
+    if not ranges or any(r is None for _, r in ranges):
+        return ""
+    return " over the groups and " + _list([f"{low} to {high} in {_name(label)}" for label, (low, high) in ranges])
 
 
 def _filtered(data) -> str:
@@ -754,6 +780,9 @@ def methods_paragraph(result) -> str:
     if coding:
         parts.insert(1, coding)
     parts += _design_sentences([result])
+    missingness = _completely_at_random_sentence(result)
+    if missingness:
+        parts.append(missingness)
     inadmissible = not result.admissible
     if inadmissible:
         serious = [p for p in result.problems if p.kind.inadmissible]

@@ -573,8 +573,30 @@ def missing_table(result) -> ReportTable | None:
     weights = summary.get("counted_by_weights")
     if weights:
         note += f". Rows are counted by their frequency weights ('{weights}'), as N is"
+    note += "." + _completely_at_random_note(result)
     return _table("missing", "Missing answers",
                   [("Items not answered", "l"), ("Rows, weighted" if weights else "Rows", "r")], rows, note)
+
+
+def _completely_at_random_note(result) -> str:
+    """Little's test of the fit's rows with gaps (full-information ML), with what it cannot show; '' without it."""
+    from cfa_tool.assessment.missingness import LISTWISE_NEEDS, NOT_WITH_DESIGN, READING, TEST_NAME
+
+    test = getattr(result, "completely_at_random", None)
+    if test is None:
+        if result.method.missing is MissingData.LISTWISE and not result.method.ordinal:
+            return f" {LISTWISE_NEEDS}"
+        columns = result.design.columns if getattr(result, "design", None) is not None else None
+        design = columns is not None and (columns.kind is not WeightKind.FREQUENCY or columns.cluster is not None
+                                          or columns.strata is not None)
+        return f" {NOT_WITH_DESIGN}" if result.method.full_information and design else ""
+    each = "; ".join(f"group {label}: chi-square {d2:.2f} on {df} df, p {p_phrase(p)}"
+                     for label, d2, df, p in test.groups if df > 0)
+    verdict = ("" if test.p_value >= 0.05 else " The rows with different gaps differ in their answers: the answers "
+               "are not missing completely at random.")
+    return (f" {TEST_NAME} (from the saturated model's EM estimates, over {test.patterns} patterns"
+            f"{', the groups added up' if test.groups else ''}): chi-square {test.chi_square:.2f} on {test.df} df, "
+            f"p {p_phrase(test.p_value)}{f' ({each})' if each else ''}.{verdict} {READING}")
 
 
 def modification_table(result, group: int | None = None, limit: int = 10) -> ReportTable | None:
@@ -843,6 +865,11 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
                   values=([c for c, _ in columns], values))
 
 
+#: the caution of a table that names rows by their ids (--id): ids identify the people who answered
+IDS_IDENTIFY = ("The ids identify respondents: leave this table out of anything published or shared (the row "
+                "numbers find the same rows in the data file).")
+
+
 def case_table(result, group: int = 0) -> ReportTable | None:
     cases = result.groups[group].influential_cases
     if not cases:
@@ -858,9 +885,10 @@ def case_table(result, group: int = 0) -> ReportTable | None:
               + ([c.model_mahalanobis] if gaps else []) + [c.p_value] for c, i in zip(shown, ids)]
     body = [[str(c.row), *i, num(c.chi_square_share, 2)] + ([str(c.answered)] if gaps else []) + [num(c.mahalanobis, 2)]
             + ([num(c.model_mahalanobis, 2)] if gaps else []) + [p_value(c.p_value)] for c, i in zip(shown, ids)]
-    note = ("Each row's contribution (in chi-square units; negative for a row the model fits better than the saturated "
-            "model does) sums over all rows to the chi-square; large contributions and distances point at rows worth "
-            "checking.")
+    note = ((IDS_IDENTIFY + " ") if named else "") + (
+        "Each row's contribution (in chi-square units; negative for a row the model fits better than the saturated "
+        "model does) sums over all rows to the chi-square; large contributions and distances point at rows worth "
+        "checking.")
     if result.design is not None and result.design.columns.weights:
         note += (f" Under the {result.design.columns.kind.label} each row's contribution is its weight times its own, "
                  "and its distances are from the weighted means and covariances.")

@@ -230,7 +230,7 @@ class InvarianceResult(Presentable):
     reference_rule: object = None
 
     def to_dict(self) -> dict:
-        first = self.steps[0].result
+        data = self._data_dict()
         return {
             "warnings": list(self.warnings),
             "data_problems": [p.to_dict() for p in self.data_problems],
@@ -249,9 +249,21 @@ class InvarianceResult(Presentable):
             "latent_differences": [d.to_dict() for d in self.latent_differences],
             "latent_differences_note": self.latent_note,
             "means_not_estimated": list(self.means_not_estimated),
-            # how the model coded answers recorded as words, as fit's JSON has it
-            **({"data": {"answer_coding": coding_json(first.data.answer_coding)}} if first.data.answer_coding else {}),
+            **({"data": data} if data else {}),
         }
+
+    def _data_dict(self) -> dict:
+        """How the model coded answers recorded as words, as fit's JSON has it, and with pairwise present rows
+        (ordinal items with gaps) the rows per pair of items over the groups and in each group, where its
+        polychoric correlations were computed."""
+        first = self.steps[0].result
+        data = {"answer_coding": coding_json(first.data.answer_coding)} if first.data.answer_coding else {}
+        pairs = first.data.pair_range
+        if pairs is not None and pairs[0] < first.n_obs and all(g.data.pair_range is not None for g in first.groups):
+            data["rows_per_pair"] = {"all_groups": {"fewest": pairs[0], "most": pairs[1]},
+                                     "groups": [{"group": g.label, "fewest": g.data.pair_range[0],
+                                                 "most": g.data.pair_range[1]} for g in first.groups]}
+        return data
 
 
 def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
