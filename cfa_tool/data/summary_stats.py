@@ -344,6 +344,8 @@ def pasted_matrix(frame: pd.DataFrame, row_names: pd.Series | None, items, sourc
     error saying how to write it as summary statistics, rather than a fit of its rows as answers.  ``row_names``:
     the file's row-name column (readers.LoadedData.row_names) or None, when the first column of ``frame`` that is
     not an item names the rows."""
+    if len(frame) > len(items) + 10:  # more rows than a matrix and its few rows after it: rows of answers (every fit
+        return  # reads its data through here: this keeps the check off the default call's time, issue 20)
     items = [str(x) for x in items]
     if len(items) < 2 or any(x not in frame.columns for x in items):
         return
