@@ -583,11 +583,28 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: 
 
 
 COPIED_ROWS_SHOWN = 5  # pairs of a copied row and its original that the caution names before 'and N more'
-#: in a file of the model's answers alone (no id, date or other column), respondents who answered alike look like
-#: copies (in simulated answers on 1 to 5 to six items, 26 of 300 rows repeated an earlier one by chance); their
-#: identical rows are named only when at least this many consecutive rows repeat consecutive earlier rows in order,
-#: as rows pasted twice or a file appended to itself leave them (a rule of thumb of this project, not a published one)
+#: without a column that tells respondents apart (an id, a time stamp, free text: see :func:`_identifying_column`),
+#: respondents who answered alike look like copies (in simulated answers on 1 to 5 to six items, 26 of 300 rows
+#: repeated an earlier one by chance, also beside a district or gender column); their identical rows are named only
+#: when at least this many consecutive rows repeat consecutive earlier rows in order, as rows pasted twice or a file
+#: appended to itself leave them (a rule of thumb of this project, not a published one)
 COPIED_RUN_OF_ANSWERS_ALONE = 5
+#: a column tells respondents apart when it holds at least this share as many distinct values as the rows that are
+#: not copies (an id column of a file appended to itself holds each id twice, and still tells the respondents apart)
+IDENTIFYING_SHARE = 0.9
+
+
+def _identifying_column(frame: pd.DataFrame, skip: set, copies: int) -> bool:
+    """Whether a column of ``frame`` other than those in ``skip`` (the model's items, groups, design, a row-number
+    column) tells respondents apart, so that rows identical in it too are unlikely to agree by chance (review s11: a
+    district column beside six items made every chance agreement a caution)."""
+    distinct_rows = len(frame) - copies
+    for name in frame.columns:
+        if name in skip:
+            continue
+        if frame[name].nunique(dropna=True) >= IDENTIFYING_SHARE * distinct_rows:
+            return True
+    return False
 
 
 def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignColumns | None, names: tuple[str, ...],
@@ -611,11 +628,13 @@ def copied_row_problems(loaded: LoadedData, group: str | None, design: DesignCol
     if found is None:
         return ()
     described = set(names) | {group} | {name for _, name in (design.names if design is not None else ())}
-    if not set(frame.columns) - described - {found.numbering} and found.longest_run() < COPIED_RUN_OF_ANSWERS_ALONE:
+    if found.longest_run() < COPIED_RUN_OF_ANSWERS_ALONE and not _identifying_column(
+            frame, described | {found.numbering}, len(found)):
         return ()
+    naming = row_naming(frame)
 
     def row(r: int) -> str:
-        return f"row {r}" + (f" ({printable(ids[r])})" if ids.get(r) is not None else "")
+        return naming.one_row(r) + (f" ({printable(ids[r])})" if ids.get(r) is not None else "")
 
     n = len(found)
     pairs = "; ".join(f"{row(c)} repeats {row(o)}" for c, o in list(zip(found.copies, found.originals))[:COPIED_ROWS_SHOWN])

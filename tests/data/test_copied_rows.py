@@ -95,3 +95,16 @@ def test_answers_alone_alike_by_chance_are_not_named(riders):
     pasted = pd.concat([answers, answers.iloc[100:106]], ignore_index=True)  # six rows pasted again at the end
     assert copied_rows(pasted, np.arange(1, 307)).longest_run() == 6
     assert _kinds(cfa_tool.fit(MODEL, pasted).problems)[0] is ProblemKind.COPIED_ROWS
+
+
+def test_answers_alike_by_chance_beside_a_district_column_are_not_named(riders):
+    # review s11: a district column beside the six answers switched the rule for answers alone off, and every chance
+    # agreement (rows identical in the answers and the district) became a caution that N is too large.  A column
+    # that tells respondents apart (the rider id) makes identical rows copies; a district does not.
+    answers = riders.drop(columns=["rider"])
+    assert int(answers.duplicated().sum()) > 0  # chance agreements in the answers and the district
+    assert ProblemKind.COPIED_ROWS not in _kinds(cfa_tool.fit(MODEL, answers).problems)
+    appended = pd.concat([riders, riders], ignore_index=True)  # the id column repeats: still tells riders apart
+    first = cfa_tool.fit(MODEL, appended).problems[0]
+    assert first.kind is ProblemKind.COPIED_ROWS
+    assert "index label 300 repeats index label 0;" in first.explanation  # a frame's rows, by their labels
