@@ -95,7 +95,8 @@ def invariance_power_report(result) -> Report:
                    f"{unit(result.alpha, 2)}). MC SE: its Monte Carlo standard error, sqrt(p(1 - p)/R). Approximation: "
                    f"the rejection probability of the noncentral chi-square whose noncentrality is N times the rise in "
                    f"the minimum discrepancy when the step's model and the one before are fitted to the population "
-                   f"itself (Satorra & Saris 1985). Not admissible: replications whose fit of the step's model is not "
+                   f"itself (Satorra & Saris 1985); none after a step the population already misfits, where it "
+                   f"does not hold. Not admissible: replications whose fit of the step's model is not "
                    f"admissible (kept in the shares).",
                    values=(["Group sizes", "Level", "Tested against", "Measures", "df", "Share rejecting",
                             "Monte Carlo SE", "Noncentral chi-square approximation", "Noncentrality",

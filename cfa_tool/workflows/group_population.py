@@ -7,7 +7,8 @@ model file (:func:`cfa_tool.workflows.simulation.population_from_spec`: 'start'
 and 'fix' statements, standardized defaults beside them); intercepts and factor
 means are 0 unless a statement gives them; an ``in group NAME:`` statement gives
 a value for that group alone, which is how a researcher states the difference a
-study should detect (a loading of .5 instead of .7 in one language version).
+study should detect (a loading of .8 instead of 1 in one language version: values in the model's own units, a
+marker's loading being 1, not standardized ones).
 """
 
 from __future__ import annotations

@@ -294,6 +294,8 @@ def _design_power(ladder, design: tuple[int, ...], replications: int, draws: lis
         step_df, step_lam = df - df_before, max(lam - lam_before, 0.0) if not holds else 0.0
         count, named = counted_problems(d.problems[k] for d in ok)
         steps.append(StepPower(ladder[k][0], ladder[k - 1][0], role, step_df, step_lam,
+                               # after a misfitting step the noncentral approximation does not hold (review s11)
+                               float("nan") if role is StepRole.AFTER_MISFIT else
                                approximate_power(step_df, step_lam, alpha), sum(d.rejected[k - 1] for d in ok),
                                len(ok), count, named))
     count, named = counted_problems(d.problems[0] for d in ok)
