@@ -409,7 +409,7 @@ def check_table_folder(option: str, folder: str | Path, files: dict[str, str],
 def write_table_folder(option: str, folder: str | Path, files: dict[str, str],
                        inputs: list[str | Path | None]) -> tuple[str, ...]:
     """Write ``files`` (name -> text) into ``folder``; nothing is written unless every file can be.  Returns the
-    names of the files an earlier run of this tool wrote there (unchanged since) that this run did not write: they
+    names of the files an earlier run of this tool wrote there (changed since or not) that this run did not write: they
     are left in place (never removed: this run did not create them), and the caller says so."""
     path = Path(folder)
     check_table_folder(option, folder, files, inputs)
@@ -427,8 +427,7 @@ def write_table_folder(option: str, folder: str | Path, files: dict[str, str],
         earlier = _read_record(path, option)
     except OptionError:
         return ()
-    return tuple(sorted(name for name in earlier if name not in files and (path / name).is_file()
-                        and _written_here(path / name, option)))
+    return tuple(sorted(name for name in earlier if name not in files and (path / name).is_file()))
 
 
 def _checksum(data: bytes) -> str:

@@ -342,7 +342,8 @@ def _each_pair(names, results, test_pair, specs, likelihood: bool) -> tuple[list
                 not_nested.append(NotNested(names[a], names[b], different, information_criteria=False))
                 continue
             if not (results[a].converged and results[b].converged):
-                not_nested.append(NotNested(names[a], names[b], "a model could not be estimated",
+                failed = [names[k] for k in (a, b) if not results[k].converged]
+                not_nested.append(NotNested(names[a], names[b], f"{' and '.join(failed)} could not be estimated",
                                             information_criteria=False))
                 continue
             found, reason = test_pair(a, b)
