@@ -388,7 +388,8 @@ def _two_samples(spec: Spec, frames: tuple[pd.DataFrame, pd.DataFrame], source: 
         groups, _ = split_ordinal_moments(both, SAMPLE_COLUMN, spec.observed_names, source, "calibration", pairwise,
                                           None, continuous)
     except DataError as exc:  # an answer category of an ordinal item missing from one sample, named by the error
-        return (f"the two samples' thresholds cannot be estimated side by side: {printable(str(exc))}")
+        return (f"an answer category of an ordinal item is missing from one sample, so the two samples' thresholds "
+                f"cannot be estimated side by side ({printable(str(exc))})")
     return groups
 
 
