@@ -96,7 +96,8 @@ def invariance_power_report(result) -> Report:
                    f"the rejection probability of the noncentral chi-square whose noncentrality is N times the rise in "
                    f"the minimum discrepancy when the step's model and the one before are fitted to the population "
                    f"itself (Satorra & Saris 1985); none after a step the population already misfits, where it "
-                   f"does not hold. Not admissible: replications whose fit of the step's model is not "
+                   f"does not hold. It is a large-sample approximation: where it and the share rejecting differ by "
+                   f"more than about two Monte Carlo standard errors, plan by the share rejecting. Not admissible: replications whose fit of the step's model is not "
                    f"admissible (kept in the shares).",
                    values=(["Group sizes", "Level", "Tested against", "Measures", "df", "Share rejecting",
                             "Monte Carlo SE", "Noncentral chi-square approximation", "Noncentrality",
