@@ -83,8 +83,8 @@ def default_reference(frame: pd.DataFrame, column: str, labels: list[str]) -> tu
 
 
 def reference_words(label: str, rule: ReferenceRule) -> str:
-    """The reference group and why, as every report says it beside the group's name: "north, the largest group;
-    choose another with --reference-group" (a group chosen by the user: its name alone)."""
+    """The reference group and why, as every report says it beside the group's name: "north, the first label in
+    sorted order; choose another with --reference-group" (a group chosen by the user: its name alone)."""
     from cfa_tool.options import Option
 
     if rule is ReferenceRule.GIVEN:
@@ -97,9 +97,8 @@ def reference_rule(frame: pd.DataFrame, column: str, reference: str | None = Non
     :func:`default_reference` chose it."""
     if reference is not None:
         return ReferenceRule.GIVEN
-    if isinstance(frame[column].dtype, pd.CategoricalDtype):
-        return ReferenceRule.FIRST_CATEGORY
-    return ReferenceRule.LOWEST_CODE if code_order(frame, column) else ReferenceRule.FIRST_LABEL
+    present = list(dict.fromkeys(label_text(v) for v in frame[column].dropna().unique()))
+    return default_reference(frame, column, present)[1]  # the branch the choice took, by the one rule
 
 
 def split_moments(frame: pd.DataFrame, column: str, names: tuple[str, ...], source: str,
