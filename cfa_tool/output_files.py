@@ -335,13 +335,14 @@ def _written_here(path: Path, option: str) -> bool:
     return recorded is not None and recorded == _checksum(path.read_bytes())
 
 
-def _record(folder: Path, written: dict[str, str], option: str) -> None:
-    """Add the files just written (name -> checksum) to ``folder``'s record.  A record that cannot be written
-    costs only the right to replace those files later, so it never fails the run."""
+def _record(folder: Path, written: dict[str, str], option: str) -> dict[str, str]:
+    """Add the files just written (name -> checksum) to ``folder``'s record, and return the record (empty when a
+    foreign file holds its name).  A record that cannot be written costs only the right to replace those files
+    later, so it never fails the run."""
     try:
         files = _read_record(folder, option)
     except OptionError:
-        return  # a foreign file under the record's name: left alone
+        return {}  # a foreign file under the record's name: left alone
     files.update(written)
     try:
         _replace_atomically(folder / RECORD, json.dumps({"written by": _RECORD_MARK, "files": files}, indent=1,
@@ -350,6 +351,7 @@ def _record(folder: Path, written: dict[str, str], option: str) -> None:
             os.unlink(folder / OLD_RECORD)  # its files are in the new record now
     except (OptionError, OSError):
         pass
+    return files
 
 
 def _replace_atomically(real: Path, data: bytes, option: str, new_only: bool = False) -> None:
@@ -422,11 +424,7 @@ def write_table_folder(option: str, folder: str | Path, files: dict[str, str],
         data = text.encode("utf-8")
         _replace_atomically(path / name, data, option)
         written[name] = _checksum(data)
-    _record(path, written, option)
-    try:
-        earlier = _read_record(path, option)
-    except OptionError:
-        return ()
+    earlier = _record(path, written, option)  # the record as written, read once
     return tuple(sorted(name for name in earlier if name not in files and (path / name).is_file()))
 
 
