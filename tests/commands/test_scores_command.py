@@ -323,8 +323,8 @@ def test_rows_scored_from_some_of_a_factors_items_are_said_to_be_less_precise(hs
     # new-user trial s11: patients scored from 2-3 of 5 items had SEs of .45-.54 against .37 and nothing said so.
     # Check values: the regression score's error variance given the items a row answered, diag(Phi - Phi L_o'
     # Sigma_oo^-1 L_o Phi) for the answered items o (the posterior variance of the factors given the answers under
-    # a normal factor model; Bartholomew, Knott & Moustaki 2011, ch. 2), computed here with numpy from the fit's
-    # estimates; the note's range must be that of the rows with gaps.
+    # a normal factor model; Bartholomew, Knott & Moustaki 2011, ch. 2, recalled from memory), computed with numpy
+    # from the fit's estimates; the note's range must be that of the rows with gaps.
     import re
 
     import cfa_tool
