@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import json
 
+from cfa_tool.numerics.plain import clean
 from cfa_tool.version import __version__
 
 
@@ -14,7 +15,9 @@ def to_json(result, report=None) -> str:
     from cfa_tool.reporting.reports import kind_of, report_of
 
     payload = {"tool": "cfa-tool", "version": __version__}
-    payload.update(result.to_dict())  # a result's problems first, after the tool's name and version
+    # a result's problems first, after the tool's name and version; cleaned here too, so that a number no result
+    # made JSON-ready (NaN, infinity, a numpy scalar) is written as JSON can hold it rather than stopping the run
+    payload.update(clean(result.to_dict()))
     payload["command"] = kind_of(result).value
     payload["report"] = (report if report is not None else report_of(result)).to_dict()
     return json.dumps(payload, indent=2, allow_nan=False) + "\n"

@@ -13,7 +13,7 @@ before it, are fitted to the population moments themselves.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from enum import Enum
 
 import numpy as np
@@ -25,6 +25,7 @@ from cfa_tool.errors import CfaError, EstimationError, ModelError, OptionError
 from cfa_tool.language.spec import Spec
 from cfa_tool.method import DifferenceMethod
 from cfa_tool.numerics import distributions as dist
+from cfa_tool.numerics.plain import clean
 from cfa_tool.views import Presentable
 from cfa_tool.workflows.group_population import GroupPopulation, designs_of, group_population
 from cfa_tool.workflows.invariance import LEVELS, NormalLadder, rejected_by_test, spec_of_level
@@ -117,13 +118,13 @@ class InvariancePower(Presentable):
         return self.population.labels
 
     def to_dict(self) -> dict:
-        return {"groups": list(self.labels), "reference_group": self.labels[0], "replications": self.replications,
+        return clean({"groups": list(self.labels), "reference_group": self.labels[0], "replications": self.replications,
                 "alpha": self.alpha, "seed": self.seed, "difference_test": self.method.value,
                 "difference_test_described": self.method.phrase,
                 "designs": [d.to_dict(self.labels) for d in self.designs],
                 "population_differences": [d.to_dict() for d in self.population.differences],
                 "population": self.population.shared.values(),
-                "population_defaults": list(self.population.shared.defaulted)}
+                "population_defaults": list(self.population.shared.defaulted)})
 
 
 @dataclass(frozen=True)
@@ -137,10 +138,14 @@ class _Draw:
 
 
 def _ladder_of(spec: Spec, highest: str) -> tuple[tuple[str, Spec], ...]:
-    """(level, model) of each level up to ``highest``, as the invariance command fits them."""
+    """(level, model) of each level up to ``highest``, as the invariance command fits them.  Without the model
+    file's 'start' statements: here they are the population's values (one for every group, and 'in group'
+    values that differ from it), not starting values, and a level that holds such a parameter equal across groups
+    could take only one of them."""
+    fitted = replace(spec, starts=())
     out = []
     for level, classes, _ in LEVELS:
-        out.append((level, spec_of_level(spec, classes, spec.noninvariant)))
+        out.append((level, spec_of_level(fitted, classes, spec.noninvariant)))
         if level == highest:
             break
     return tuple(out)
@@ -263,7 +268,7 @@ def invariance_power(model, group_sizes, replications: int = 500, seed: int = 1,
             raise OptionError(f"{sum(design):,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} "
                               f"values per simulated data set; plan with smaller groups")
     ladder = _ladder_of(spec, highest_level)
-    population = group_population(spec, labels, ladder[0][1])
+    population = group_population(spec, labels, spec_of_level(spec, LEVELS[0][1], spec.noninvariant))
     truth = [_population_steps(population, ladder, design) for design in designs]
     # one design keeps the seeds one sample size has; several take one stream per design from the same seed
     streams = ([np.random.SeedSequence(seed)] if len(designs) == 1

@@ -223,3 +223,28 @@ def test_a_declared_noninvariant_parameter_is_left_free_at_each_level():
     metric, scalar = result.designs[0].steps
     assert (scalar.role, scalar.df, scalar.noncentrality) == (StepRole.FALSE_ALARM, 2, 0.0)
     assert "The model declares the intercept of x2 not equal across groups" in " ".join(result.summary().split())
+
+
+def test_a_value_for_every_group_and_another_for_one_group_plan_the_difference(tmp_path, capsys):
+    # README: "a statement without 'in group' gives every group's value, and 'in group south: ...' the value of one
+    # group".  Both on the same loading were refused as conflicting start values of a parameter the metric model
+    # holds equal across groups: here they are population values, not starting values of the fits.
+    model = ("factor f: x1, x2, x3, x4\nstart loading(f, x2) = .7\nstart loading(f, x3) = .7\n"
+             "start loading(f, x4) = .7\nin group south: start loading(f, x3) = .45\n")
+    result = invariance_power(model, "north=150,south=150", replications=4, workers=1)
+    [difference] = result.population.differences
+    assert (difference.kind, difference.variables, difference.group) == ("loading", ("f", "x3"), "south")
+    assert (difference.value, difference.reference_value) == (pytest.approx(0.45), pytest.approx(0.7))
+    metric, scalar = result.designs[0].steps
+    assert metric.role is StepRole.POWER and scalar.role is StepRole.AFTER_MISFIT
+    # the JSON holds the step after the misfit without an approximation (null), rather than stopping the run on a
+    # number JSON cannot hold (an internal error, exit 1)
+    path = tmp_path / "plan.cfa"
+    path.write_text(model)
+    out = tmp_path / "plan.json"
+    assert main(["power-simulation", str(path), "--group-sizes", "north=150,south=150", "--replications", "4",
+                 "--workers", "1", "--json", str(out)]) == 0
+    steps = json.loads(out.read_text())["designs"][0]["steps"]
+    assert [s["measures"] for s in steps] == ["power", "rejection rate after a misfitting step"]
+    assert steps[1]["approximate_power"] is None and steps[0]["approximate_power"] > 0.05
+    assert result.to_dict()["designs"][0]["steps"][1]["approximate_power"] is None
