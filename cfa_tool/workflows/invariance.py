@@ -600,7 +600,8 @@ def latent_differences(steps) -> tuple[tuple[LatentDifference, ...], str, tuple[
     which = "the partially invariant scalar model" if any(s.partly_equal for s in steps if s.level != "strict") \
         else "the scalar model"
     return tuple(out), (f"From {which}: each group's factor means against the reference group {reference} (whose means "
-                        f"are fixed at 0); standardized by the pooled latent standard deviation of the two groups."
+                        f"are fixed at 0); d: the mean over the pooled latent standard deviation of the group and the reference group; "
+                        f"Var. ratio: the group's factor variance over the reference group's."
                         + ("" if steps[0].holds else " The configural model misfits, so read them with caution."
                            if steps[0].result.admissible else " The configural model's solution is not admissible, so "
                            "read them with caution.")

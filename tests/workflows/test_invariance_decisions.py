@@ -150,6 +150,10 @@ def test_no_latent_mean_for_a_factor_with_fewer_than_two_equal_items():
     assert sorted(f.variables[0] for f in result.freed) == ["y5", "y6"]
     assert {d.factor for d in result.latent_differences} == {"f"}
     assert "None for h: fewer than two of its items keep equal loadings and intercepts" in result.latent_note
+    # every column of the table is explained in its note (the variance ratio was not)
+    variance = next(d for d in result.latent_differences if d.factor == "f")
+    assert variance.variance_ratio == pytest.approx(variance.variance / variance.reference_variance)
+    assert "Var. ratio: the group's factor variance over the reference group's." in result.latent_note
 
 
 def test_a_configural_model_that_does_not_converge_is_an_estimation_error(hs_data):
