@@ -349,11 +349,16 @@ def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") 
     """Where the declared keying contradicts the signs of the estimated loadings, and factors that point
     against their items (so that every correlation, mean difference and score of theirs reads the wrong way)."""
     out = []
+    split = [r for r in factors if r.evenly_split and not r.points_against and r.keying is not Keying.DECLARED]
+    if split:  # one caution for all such factors: the advice is the same for each
+        out.append(_split_warning(split, prefix))
     for r in factors:
-        if r.points_against:  # a problem of the solution, not a note: keying_problems
-            continue
+        if r.points_against or (r.evenly_split and r.keying is not Keying.DECLARED):
+            continue  # pointing against: a problem of the solution, not a note (keying_problems)
         if r.evenly_split:
-            out.append(_split_warning(r, prefix))
+            out.append(f"{prefix}factor '{r.factor}': half of its items load against the keying the 'reversed' "
+                       f"statement declares, so no majority tells which way it points; check the statement and how "
+                       f"the answers were coded")
             continue
         if r.against_keying:
             names = ", ".join(f"'{x}'" for x in r.against_keying)
@@ -362,18 +367,24 @@ def keying_warnings(factors: list[FactorReliability] | tuple, prefix: str = "") 
     return out
 
 
-def _split_warning(r: FactorReliability, prefix: str) -> str:
-    """The caution for a factor half of whose items load each way (``evenly_split``)."""
-    rest = [x for x in r.items if x not in r.reversed]
-    if r.keying is Keying.DECLARED:
-        return (f"{prefix}factor '{r.factor}': half of its items load against the keying the 'reversed' statement "
-                f"declares, so no majority tells which way it points; check the statement and how the answers "
-                f"were coded")
-    return (f"{prefix}factor '{r.factor}': half of its items load each way ({', '.join(rest)} against "
-            f"{', '.join(r.reversed)}), so the data cannot tell which way it points: its direction follows its "
-            f"marker, and its correlations, mean differences and scores may read the wrong way; declare the items "
-            f"worded against the trait with 'reversed ... on LOWEST to HIGHEST', which orients the factor by its "
-            f"other items and keys the sums")
+def _split_warning(split: list[FactorReliability], prefix: str) -> str:
+    """The caution for the factors half of whose items load each way (``evenly_split``) with no 'reversed'
+    statement: one sentence for all of them, each factor's two halves named."""
+    def halves(r: FactorReliability) -> str:
+        return f"{', '.join(x for x in r.items if x not in r.reversed)} against {', '.join(r.reversed)}"
+
+    if len(split) == 1:
+        r = split[0]
+        return (f"{prefix}factor '{r.factor}': half of its items load each way ({halves(r)}), so the data cannot "
+                f"tell which way it points: its direction follows its marker, and its correlations, mean differences "
+                f"and scores may read the wrong way; declare the items worded against the trait with 'reversed ... "
+                f"on LOWEST to HIGHEST', which orients the factor by its other items and keys the sums")
+    named = ", ".join(f"'{r.factor}'" for r in split[:-1]) + f" and '{split[-1].factor}'"
+    return (f"{prefix}factors {named}: half of each one's items load each way "
+            f"({'; '.join(f'{r.factor}: {halves(r)}' for r in split)}), so the data cannot tell which way each "
+            f"points: its direction follows its marker, and its correlations, mean differences and scores may read "
+            f"the wrong way; declare the items worded against the trait with 'reversed ... on LOWEST to HIGHEST', "
+            f"which orients each factor by its other items and keys the sums")
 
 
 def _turned_warning(r: FactorReliability) -> tuple[str, str]:

@@ -171,3 +171,20 @@ def test_a_factor_whose_items_split_evenly_is_named():
     keyed = cfa_tool.fit("factor k: d1..d4\nreversed d1, d3 on -9 to 9\n", rows)
     assert not any("half of its items" in w for w in keyed.warnings)
     assert "evenly_split" not in next(r for r in keyed.groups[0].reliability if r.factor == "k").to_dict()
+
+
+def test_several_split_factors_share_one_caution_that_names_each_ones_halves():
+    # a fifty-item inventory with five such factors gave five six-line cautions, each with the same advice, at the
+    # top of every view: one caution names every factor and its two halves, with the advice once (invented
+    # population: loadings .7 with signs -, +, -, + on each of two uncorrelated factors)
+    L = np.zeros((8, 2))
+    L[:4, 0] = L[4:, 1] = [-0.7, 0.7, -0.7, 0.7]
+    names = ["d1", "d2", "d3", "d4", "e1", "e2", "e3", "e4"]
+    rows = simulate_cfa(L, np.eye(2), np.diag(np.full(8, 0.51)), 800, 31, names)
+    result = cfa_tool.fit("factor k: d1..d4\nfactor m: e1..e4\n", rows)
+    said = [w for w in result.warnings if "load each way" in w]
+    assert len(said) == 1 and said[0].startswith("factors 'k' and 'm': half of each one's items load each way")
+    for r in result.groups[0].reliability:
+        rest = [x for x in r.items if x not in r.reversed]
+        assert f"{r.factor}: {', '.join(rest)} against {', '.join(r.reversed)}" in said[0]
+    assert said[0].count("declare the items worded against the trait") == 1
