@@ -119,15 +119,19 @@ ROWS_RULE = (f"a common rule of thumb (Bentler & Chou 1987) asks for at least {R
              f"per parameter; a convention, not a law")
 
 
-def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Sequence[str] | None = None
-                         ) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
+def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Sequence[str] | None = None,
+                         uncounted: int = 0) -> tuple[tuple["Problem", ...], tuple[str, ...]]:
     """The one rule of rows per parameter, for the whole sample (``groups`` None; ``rows`` and ``free`` then hold one
     number each) and for each group of several (``groups`` their labels; ``rows`` and ``free`` one number per group):
     a caution (first in every view) for a sample or group with fewer rows than its model's free parameters, and a
     note naming those with fewer than :data:`ROWS_PER_PARAMETER` rows per parameter (a common rule of thumb;
     Bentler & Chou 1987, recalled from memory: a convention, not a law).  ``free`` counts the model's parameters the
-    same way whatever the estimator (:func:`counted_parameters`).  Returns (problems, notes)."""
+    same way whatever the estimator (:func:`counted_parameters`); ``uncounted``: the item means a one-group fit
+    estimates beside them and the count leaves out, named so that the count agrees with the fit's table of free
+    parameters.  Returns (problems, notes)."""
     several = groups is not None
+    besides = (f" (not counting the {uncounted} item mean{'s' if uncounted != 1 else ''} that full-information ML "
+               f"estimates beside {'them' if uncounted != 1 else 'it'})" if uncounted and not several else "")
     problems, noted = [], []
     for label, n, q in zip(groups if several else (None,), rows, free):
         if q <= 0 or n >= ROWS_PER_PARAMETER * q:
@@ -139,7 +143,7 @@ def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Seq
         also = "its estimates, and every comparison with the other groups," if several else "every estimate and fit index"
         problems.append(Problem(
             ProblemKind.SMALL_GROUP if several else ProblemKind.SMALL_SAMPLE, (), float(n),
-            f"{n:g} rows for the {q} free parameters of {whose}: {also} rest{'' if several else 's'} on too few "
+            f"{n:g} rows for the {q} free parameters of {whose}{besides}: {also} rest{'' if several else 's'} on too few "
             f"answers" + ("" if several else ", and a CFI of 1 or a TLI above 1 then says little about fit")
             + f" (fewer rows than parameters; {ROWS_RULE}).",
             "gather more rows for this group, join it with a similar group by recoding the group column, or leave it "
@@ -150,7 +154,8 @@ def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Seq
         return tuple(problems), ()
     if not several:
         (_, n, q), = noted
-        return tuple(problems), (f"{n:g} rows for the {q} free parameters of the model, fewer than {ROWS_PER_PARAMETER} "
+        return tuple(problems), (f"{n:g} rows for the {q} free parameters of the model{besides}, fewer than "
+                                 f"{ROWS_PER_PARAMETER} "
                                  f"per parameter ({ROWS_RULE}): estimates and fit indices of a sample this small vary "
                                  f"much from sample to sample",)
     each = [f"{printable(str(label))} ({n:g} rows for {q} parameters)" for label, n, q in noted]
@@ -167,6 +172,14 @@ def counted_parameters(free: int, labels: Iterable[str]) -> int:
     own): so one missing cell does not change the count.  Groups of several keep their intercepts, part of every
     multi-group model whatever the estimator."""
     return free - sum(1 for label in labels if label.startswith("intercept("))  # a label begins with its kind
+
+
+def one_sample_size_problems(rows: float, free: int, labels: Sequence[str]) -> tuple[tuple["Problem", ...],
+                                                                                     tuple[str, ...]]:
+    """:func:`sample_size_problems` of a one-group model with ``free`` parameters as the fit counts them and
+    ``labels`` their labels: counted by :func:`counted_parameters`, the item means it leaves out named."""
+    counted = counted_parameters(free, labels)
+    return sample_size_problems((rows,), (counted,), uncounted=free - counted)
 
 
 def free_parameters(result) -> int:

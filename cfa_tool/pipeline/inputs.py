@@ -1374,8 +1374,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     coverage.  A sampling design (``weights``, ``cluster``, ``strata``, ``weight_kind``, as for :func:`fit`) is
     checked as the fit checks it and stated: the sum of the weights, Kish's effective sample size, the
     clusters and strata, with the caution a fit would give about too few clusters."""
-    from cfa_tool.assessment.admissibility import (counted_parameters, group_parameter_counts, group_size_problems,
-                                                   sample_size_problems)
+    from cfa_tool.assessment.admissibility import group_parameter_counts, group_size_problems, one_sample_size_problems
     from cfa_tool.assessment.identification import check_counting_rule
     from cfa_tool.model.parameters import build_parameter_table
 
@@ -1421,7 +1420,7 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     # the rows per parameter of the sample or of each group, by the fit's rule (an ordinal fit's thresholds: counted
     # by the fit)
     small, small_notes = ((), ()) if ordinal_items else group_size_problems(table, [m.n_obs for _, m in groups]) \
-        if labels else sample_size_problems([groups[0][1].n_obs], [counted_parameters(table.n_free, table.free_labels)])
+        if labels else one_sample_size_problems(groups[0][1].n_obs, table.n_free, table.free_labels)
     notes += small_notes
     sample_design = design_summary(frame, design, [m for _, m in groups]) if design is not None else None
     answered = _labelled(frame, group)[list(spec.observed_names)].notna()

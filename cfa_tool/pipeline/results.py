@@ -557,10 +557,10 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         if fit is not None:
             problems += poor_fit_problems(IndicesToRead.of(fit, robust))
     if len(groups) <= 1:  # one group: the rule of rows per parameter (groups of several: each group's, by the same rule)
-        from cfa_tool.assessment.admissibility import counted_parameters, sample_size_problems
+        from cfa_tool.assessment.admissibility import one_sample_size_problems
 
-        free = counted_parameters(fit.n_free_parameters if fit is not None else len(parameter_labels), parameter_labels)
-        small, notes = sample_size_problems((n_obs,), (free,))
+        small, notes = one_sample_size_problems(n_obs, fit.n_free_parameters if fit is not None
+                                                else len(parameter_labels), parameter_labels)
         problems, warnings = small + tuple(problems), tuple(warnings) + notes
     return FitResult(
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,

@@ -36,7 +36,9 @@ def test_one_missing_cell_does_not_change_the_count(hs_data):
     result = cfa_tool.fit(THREE_FACTORS, data)
     assert result.method.missing.name == "FULL_INFORMATION"
     assert not any(p.kind is ProblemKind.SMALL_SAMPLE for p in result.problems)
-    said = [w for w in result.warnings if w.startswith("22 rows for the 21 free parameters of the model, fewer than 5")]
+    said = [w for w in result.warnings if w.startswith("22 rows for the 21 free parameters of the model (not counting "
+                                                       "the 9 item means that full-information ML estimates beside "
+                                                       "them), fewer than 5")]
     assert said and said[0] in cfa_tool.check(THREE_FACTORS, data).notes  # check says what the fit says
 
 
@@ -89,3 +91,19 @@ def test_compare_and_replicate_give_the_small_sample_caution_first(hs_data):
     one_factor = "factor g: x1, x2, x3, x4, x5, x6, x7, x8, x9\n"
     notice = comparison_report(cfa_tool.compare([THREE_FACTORS, one_factor], small)).notice
     assert notice is not None and any("20 rows for the 21 free parameters" in line for line in notice.lines)
+
+
+def test_the_count_names_the_item_means_it_leaves_out(hs_data):
+    # a new-user trial read "25 rows for the 33 free parameters" above a table of 48 free parameters: a
+    # full-information fit adds the items' means, which the rule leaves out (one missing cell must not change the
+    # count); the caution now names them, so that its count and the table's agree (21 + 9 = 30, Holzinger &
+    # Swineford 1939 data, one cell emptied)
+    rows = hs_data[ITEMS].iloc[:60].copy()
+    rows.iloc[0, 0] = float("nan")
+    result = cfa_tool.fit(THREE_FACTORS, rows)
+    assert result.fit.n_free_parameters == 30
+    said = [w for w in result.warnings if "free parameters of the model" in w]
+    assert said[0].startswith("60 rows for the 21 free parameters of the model (not counting the 9 item means that "
+                              "full-information ML estimates beside them), fewer than 5 per parameter")
+    complete = cfa_tool.fit(THREE_FACTORS, hs_data[ITEMS].iloc[:60])
+    assert not any("item means" in w for w in complete.warnings)
