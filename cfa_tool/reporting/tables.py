@@ -473,7 +473,8 @@ def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: 
     """One table of parameter rows of one kind (residual covariances, intercepts, factor means, thresholds)."""
     cols = [("Variable", "l")]
     if kind in ("residual_covariance", "threshold"):
-        cols.append(({"threshold": "Step"}.get(kind, "With"), "l"))
+        cols.append(({"threshold": "Between answers"}.get(kind, "With"), "l"))
+    between = _threshold_answers(result, rows[0].group) if kind == "threshold" else {}
     cols += [("Estimate", "r"), ("SE", "r"), ("95% CI", "r"), ("p", "r"), ("Std.", "r")]
     marks = [row_problem(result, kind, r.variables, r.group) for r in rows]
     if any(marks):
@@ -481,24 +482,58 @@ def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: 
     body, numbers = [], []
     previous = None
     for r, mark in zip(rows, marks):
-        numbers.append(list(r.variables) + [r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
-                                            r.ci95[1], r.standardized, "yes" if r.free else "no"]
+        numbers.append(list(r.variables) + ([between.get(r.variables)] if kind == "threshold" else [])
+                       + [r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
+                          r.ci95[1], r.standardized, "yes" if r.free else "no"]
                        + ([mark] if any(marks) else []))
         names = list(r.variables)
         if kind == "threshold":
             shown = names[0] if names[0] != previous else ""
             previous = names[0]
-            names[0] = shown
+            names = [shown, between.get(r.variables, f"step {names[1]}")]
         cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value),
                          num(r.standardized, 2)]
         if any(marks):
             cells.append(mark)
         body.append(cells)
-    value_columns = [c for c, _ in cols[:len(rows[0].variables)]] + [
+    value_columns = (["Variable", "Step", "Between answers"] if kind == "threshold"
+                     else [c for c, _ in cols[:len(rows[0].variables)]]) + [
         "Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper", "Standardized", "Free"] + (
         ["Problem"] if any(marks) else [])
     return _table(key, title, cols, body, note, flagged=tuple(i for i, m in enumerate(marks) if m),
                   values=(value_columns, numbers))
+
+
+def _coded_words(result, items) -> str:
+    """The words the model's 'answers' statements code among ``items`` (' Codes of the answers: 1 Never, ...'),
+    each statement's items named when they are not all of them; '' without such statements."""
+    parts = []
+    for covered, answers in result.data.answer_coding:
+        mine = [x for x in items if x in set(covered)]
+        listed = ", ".join(f"{code:g} {word}" for word, _, code in sorted(answers, key=lambda a: a[2])
+                           if word is not None)
+        if mine and listed:
+            parts.append(listed + ("" if len(mine) == len(items) else f" ({', '.join(mine)})"))
+    return f" Codes of the answer words: {'; '.join(parts)}." if parts else ""
+
+
+def _threshold_answers(result, label) -> dict[tuple[str, str], str]:
+    """(item, step) -> the two answers a threshold lies between ('2 and 3'; the words of an 'answers' statement
+    when the model gives them), from the answers the item's rows gave in the group ``label``: an item whose rows
+    never gave its lowest answer has its first threshold between its second and third answer codes, so thresholds
+    of the same step number can lie between different answers (a new-user trial compared them by step)."""
+    data = next((g.data for g in result.groups if g.label == label), None)
+    if data is None or not data.categories:
+        return {}
+    words = {(item, code): word for items, answers in result.data.answer_coding for item in items
+             for word, _, code in answers if word is not None}
+    out = {}
+    for item, cats in zip(data.variables, data.categories):
+        codes = [v for v, _ in cats]
+        for k in range(len(codes) - 1):
+            low, high = (words.get((item, c), f"{c:g}") for c in (codes[k], codes[k + 1]))
+            out[(item, str(k + 1))] = f"{low} and {high}"
+    return out
 
 
 def residual_table(result, group: int = 0) -> ReportTable | None:
@@ -1016,7 +1051,8 @@ def category_table(result, group: int = 0) -> ReportTable | None:
                   + ("" if weights is None else ", each counted once: unweighted") + ")",
                   [("Item", "l")] + [(f"{v:g}", "r") for v in codes], rows,
                   "Each column is an answer code; each cell: the rows giving it and their share. An empty cell: a "
-                  "code the item's rows never gave (no threshold is estimated for it)." + lonely + (
+                  "code the item's rows never gave (no threshold is estimated for it)." + _coded_words(result, d.variables)
+                  + lonely + (
                       "" if weights is None else
                       f" Rows are counted once each, unweighted; the thresholds use the shares weighted by {weights}."),
                   flagged=tuple(flagged),
