@@ -174,6 +174,13 @@ def counted_parameters(free: int, labels: Iterable[str]) -> int:
     return free - sum(1 for label in labels if label.startswith("intercept("))  # a label begins with its kind
 
 
+def solution_first(problems: Iterable["Problem"]) -> tuple["Problem", ...]:
+    """``problems`` with those that make the solution not admissible first (a fit's data cautions, which it puts
+    before its own problems, after them: a new-user trial found a harmless note on missing-value words above a
+    negative variance), each kind's order kept."""
+    return tuple(sorted(problems, key=lambda p: not p.kind.inadmissible))
+
+
 def one_sample_size_problems(rows: float, free: int, labels: Sequence[str]) -> tuple[tuple["Problem", ...],
                                                                                      tuple[str, ...]]:
     """:func:`sample_size_problems` of a one-group model with ``free`` parameters as the fit counts them and

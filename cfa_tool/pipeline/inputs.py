@@ -172,13 +172,15 @@ def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
                            text_columns: tuple[str, ...] = (), items=None,
-                           names_row: int | None = None) -> tuple[Spec, LoadedData, list[str]]:
-    """The model and the data read for it; no-answer words and labels are read as missing in ``items`` only (None:
-    the model's items), never in a group, id or design column."""
+                           names_row: int | None = None, names_option: Option = Option.NAMES_ROW
+                           ) -> tuple[Spec, LoadedData, list[str]]:
+    """The model and the data read for it, as every command that reads rows reads each of its files; no-answer
+    words and labels are read as missing in ``items`` only (None: the model's items), never in a group, id or design
+    column; ``names_option``: the option that gave ``names_row`` (replicate's validation file has its own)."""
     keep = keep_option(keep)
     spec = load_spec(model)
     filters = [parse_filter(k) for k in keep]
-    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row)
+    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row, names_option)
     frame = loaded.frame
     pasted_matrix(frame, loaded.row_names, spec.observed_names, loaded.source)
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
@@ -579,7 +581,9 @@ def with_odd_values(result, loaded: LoadedData, group: str | None = None, spec: 
     found = tuple(p for p in data_problems(loaded, spec, group, design, ids, tuple(getattr(result, "observed", ()) or ()),
                                            coverage, getattr(result, "n_obs", None))
                   if p not in result.problems)
-    return replace(result, problems=found + tuple(result.problems)) if found else result
+    from cfa_tool.assessment.admissibility import solution_first
+
+    return replace(result, problems=solution_first(found + tuple(result.problems))) if found else result
 
 
 COPIED_ROWS_SHOWN = 5  # pairs of a copied row and its original that the caution names before 'and N more'

@@ -8,6 +8,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
+from cfa_tool.assessment.admissibility import solution_first
 from cfa_tool.assessment.fit_indices import FitIndices, IndicesToRead
 from cfa_tool.assessment.modification import ModificationIndices
 from cfa_tool.assessment.normality import Normality
@@ -562,6 +563,7 @@ def fit_result(*, spec, method: FitMethod, converged: bool, iterations: int, mes
         small, notes = one_sample_size_problems(n_obs, fit.n_free_parameters if fit is not None
                                                 else len(parameter_labels), parameter_labels)
         problems, warnings = small + tuple(problems), tuple(warnings) + notes
+    problems = solution_first(problems)  # an impossible solution before the cautions on rows and groups
     return FitResult(
         model_name=spec.title or spec.source, model_source=spec.source, model_text=spec.text,
         estimator=method.sentence(len(groups)), method=method, converged=converged, iterations=iterations,

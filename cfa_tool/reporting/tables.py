@@ -7,6 +7,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
+from cfa_tool.assessment.admissibility import solution_first
 from cfa_tool.assessment.reliability import BifactorPart, Keying
 from cfa_tool.data.labels import label_text
 from cfa_tool.exploration.choices import BlockErrors, FactorNaming
@@ -129,7 +130,7 @@ DATA_CAUTION = "Check the data before fitting"  # a check's cautions: nothing wa
 
 def problem_notice(result) -> ProblemNotice | None:
     """The problems of ``result``'s solution as a heading and one line per problem (None when there are none)."""
-    problems = getattr(result, "problems", ())
+    problems = solution_first(getattr(result, "problems", ()))
     if not problems:
         return None
     lines = tuple((f"Group {p.group}: " if p.group is not None else "") + p.line() for p in problems)
@@ -142,10 +143,11 @@ def problem_table(result) -> ReportTable | None:
     notice = problem_notice(result)
     if notice is None:
         return None
+    problems = solution_first(result.problems)
     rows = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()),
-             "" if p.value is None else num(p.value), p.group or "", p.explanation, p.advice] for p in result.problems]
+             "" if p.value is None else num(p.value), p.group or "", p.explanation, p.advice] for p in problems]
     values = [[p.kind.value, "yes" if p.kind.inadmissible else "no", "; ".join(p.parameter_words()), p.value, p.group or "",
-               p.explanation, p.advice] for p in result.problems]
+               p.explanation, p.advice] for p in problems]
     columns = [("Problem", "l"), ("Makes it inadmissible", "l"), ("Parameters", "l"), ("Value", "r"), ("Group", "l"),
                ("Explanation", "l"), ("What to try", "l")]
     return _table("problems", notice.heading, columns, rows, values=([c for c, _ in columns], values))

@@ -66,13 +66,14 @@ def _failed_lines(named_results) -> list[str]:
     return lines
 
 
-def _caution_lines(named_results, poor_fit: bool = True) -> list[str]:
+def _caution_lines(named_results, poor_fit: bool = True, small_groups: bool = True) -> list[str]:
     """One line per caution about a solution that is admissible but needs care in reading (a method factor that
     carries next to nothing, a standardized loading above 1, fewer rows than free parameters in the sample or a
     group, a fit poor by common bounds, unless ``poor_fit`` is False: an invariance test judges its configural
-    model's fit by its own guides), each once, named by its model."""
-    kinds = (ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, ProblemKind.SMALL_SAMPLE,
-             ProblemKind.SMALL_GROUP) + ((ProblemKind.POOR_FIT,) if poor_fit else ())
+    model's fit by its own guides; groups smaller than their model unless ``small_groups`` is False: an invariance
+    result says them once among its own cautions), each once, named by its model."""
+    kinds = (ProblemKind.WEAK_METHOD_FACTOR, ProblemKind.STANDARDIZED_LOADING_ABOVE_ONE, ProblemKind.SMALL_SAMPLE) + (
+        (ProblemKind.SMALL_GROUP,) if small_groups else ()) + ((ProblemKind.POOR_FIT,) if poor_fit else ())
     lines: list[str] = []
     for name, r in named_results:
         for p in getattr(r, "problems", ()) if r.converged else ():
@@ -559,7 +560,7 @@ def invariance_report(result) -> Report:
     # the design's caution first: it doubts every step's test, the verdicts among the warnings included
     warnings = (tuple(_design_caution_lines([(f"the {s.level} model", s.result) for s in result.steps]))
                 + tuple(result.warnings) + tuple(_caution_lines([(f"the {result.steps[0].level} model", first)],
-                                                                poor_fit=False)))
+                                                                poor_fit=False, small_groups=False)))
     notice = None if not warnings else ProblemNotice(SOME_NOT_ADMISSIBLE if inadmissible else CHECK_SOLUTIONS, warnings,
                                                      inadmissible)
     lines = ("Reference group (factor means fixed at zero): " + (result.groups[0] if result.reference_rule is None else

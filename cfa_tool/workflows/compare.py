@@ -14,6 +14,7 @@ from cfa_tool.pipeline.inputs import (_described, _no_group_notes, choose_missin
                                       with_missing_reading,
                                       ordinal_estimator_option, ordinal_items_of, read_inputs_with_notes,
                                       refuse_ordinal_for_summary, refuse_row_options, summary_source, with_design)
+from cfa_tool.assessment.admissibility import solution_first
 from cfa_tool.data.answer_words import (code_answer_words, coding_json, refuse_different_codings,
                                         refuse_for_summary_statistics)
 from cfa_tool.data.labels import label_notes
@@ -252,7 +253,8 @@ def _with_data_problems(found: Comparison, loaded, specs, group, design, dropped
         own = data_problems(loaded, spec, group, design, names=tuple(spec.observed_names), coverage=coverage,
                             n_obs=r.n_obs)
         found_all += own
-        results.append(replace(r, problems=tuple(p for p in own if p not in r.problems) + tuple(r.problems)))
+        results.append(replace(r, problems=solution_first(tuple(p for p in own if p not in r.problems)
+                                                          + tuple(r.problems))))
     if found.missing is not MissingData.FULL_INFORMATION and not pairwise and dropped:  # after the data's, as in fit
         left = listwise_problem(dropped, found.n_obs + dropped, " from every model",
                                 PAIRWISE_INSTEAD if ordinal else FULL_INFORMATION_INSTEAD)

@@ -448,10 +448,11 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     left_out, left_notes = _rows_left_out(steps[0].result)
     warnings[:0] = left_out
     notes = list(notes) + left_notes
+    impossible: list[str] = []  # impossible solutions: before the data's cautions, first in every view
     for step in reversed(steps):  # a model the search left behind: its impossible solution is said too
         full_result = step.full_result
         if step.partial and full_result is not None and full_result.converged and not full_result.admissible:
-            warnings.insert(0, f"the {step.level} model with every equality held has a solution that is not admissible ("
+            impossible.insert(0, f"the {step.level} model with every equality held has a solution that is not admissible ("
                                + "; ".join(p.phrase() for p in full_result.problems if p.kind.inadmissible)
                                + "); the partial search then freed "
                                + ", ".join(parameter_words(f.kind, f.variables, f.group) for f in step.freed)
@@ -459,13 +460,14 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                "that only they differ across groups")
     inadmissible = [s for s in steps if s.result.converged and not s.result.admissible]
     for step in reversed(inadmissible):  # problems first: an impossible solution outranks every other note
-        warnings.insert(0, f"the {step.level} model's solution is not admissible ("
+        impossible.insert(0, f"the {step.level} model's solution is not admissible ("
                            + "; ".join(p.phrase() for p in step.result.problems if p.kind.inadmissible)
                            + "): its fit and its difference test cannot show that invariance holds")
     differences, latent_note, not_estimated = latent_differences(steps)
     # groups with fewer rows than their configural model's free parameters: every step's comparison rests on them
     small = tuple(f"Group {p.group}: {p.line()}" for p in steps[0].result.problems if p.kind is ProblemKind.SMALL_GROUP)
-    return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha, data_cautions + small + tuple(warnings), rule,
+    return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
+                            tuple(impossible) + data_cautions + small + tuple(warnings), rule,
                             differences, latent_note, not_estimated, tuple(notes), found, reference)
 
 

@@ -9,6 +9,7 @@ import pytest
 
 import cfa_tool
 from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.reporting import tables as T
 from tests.conftest import THREE_FACTORS
 
 ITEMS = [f"x{i}" for i in range(1, 10)]
@@ -28,7 +29,10 @@ def test_a_group_smaller_than_its_model_is_named_first(three_schools):
     assert len(small) == 1 and small[0].group == "Annex" and small[0].value == 28.0
     assert "28 rows for the 30 free parameters of this group's model" in small[0].explanation
     assert "rule of thumb" in small[0].explanation and not small[0].kind.inadmissible
-    assert result.problems[0] is small[0]
+    # after the problems that make the solution not admissible, before every other caution
+    first = [p for p in result.problems if p.kind.inadmissible]
+    assert result.problems[len(first)] is small[0]
+    assert T.problem_notice(result).lines[len(first)].startswith("Group Annex: 28 rows")
     # groups of 145 and 128 rows get no caution, nor does anything without groups
     assert not any(p.kind is ProblemKind.SMALL_GROUP for p in cfa_tool.fit(THREE_FACTORS, three_schools).problems)
 
@@ -59,7 +63,11 @@ def test_invariance_names_the_small_group_first(three_schools):
     from cfa_tool.workflows.invariance import invariance
 
     result = invariance(THREE_FACTORS, three_schools, group="school")
-    assert result.warnings[0].startswith("Group Annex: 28 rows for the 30 free parameters")
+    # the impossible solution it leads to first (problems of a solution come first; a new-user trial found a note on
+    # the data above a negative variance), the small group right after it
+    assert result.warnings[0].startswith("the configural model's solution is not admissible (a negative residual "
+                                         "variance of x1")
+    assert result.warnings[1].startswith("Group Annex: 28 rows for the 30 free parameters")
     # and the groups below 5 rows per parameter of the configural model get the fit's note
     assert [n for n in result.notes if n.startswith("groups Grant-White (145 rows for 30 parameters) and Pasteur")]
 
