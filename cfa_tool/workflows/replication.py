@@ -57,10 +57,10 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.model.parameters import one_group_only
-from cfa_tool.pipeline.inputs import (_described, data_problems, load_data_for, load_spec, make_options, missing_codes_option,
-                                      odd_values_named, refit_missing_handling, screened)
+from cfa_tool.pipeline.inputs import (_described, data_problems, load_spec, make_options, odd_values_named,
+                                      read_inputs_with_notes, refit_missing_handling)
 from cfa_tool.assessment.fit_indices import chi_square_p
-from cfa_tool.data.answer_words import code_answer_words, coding_json, coding_record
+from cfa_tool.data.answer_words import coding_json, coding_record
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.readers import sheet_of_each
 from cfa_tool.data.kept_rows import row_naming
@@ -492,15 +492,15 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           f"new data ({_one_file_instead()})")
     sheets = sheet_of_each((calibration, validation), sheet)
-    read = [load_data_for(spec, calibration, sheets[0], missing_codes, names_row=names_row),
-            load_data_for(spec, validation, sheets[1], missing_codes, names_row=validation_names_row,
-                          names_option=Option.VALIDATION_NAMES_ROW)]
-    for loaded in read:
-        check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source, loaded.column_hint())
-    read, notes = zip(*(_words_coded(spec, loaded, missing_codes) for loaded in read))
+    # each file read as fit reads its data (declared scales, answer words, codes as labels, values that look like
+    # no answers): a hostile trial found replicate analysing answers beyond a declared scale that fit refuses
+    read, notes = zip(*(read_inputs_with_notes(spec, calibration, sheets[0], missing_codes, names_row=names_row)[1:],
+                        read_inputs_with_notes(spec, validation, sheets[1], missing_codes,
+                                               names_row=validation_names_row,
+                                               names_option=Option.VALIDATION_NAMES_ROW)[1:]))
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
-    screens = [screened(loaded.frame, spec.observed_names, loaded.source, loaded.non_answers, loaded.cautions) for loaded in read]
+    screens = list(read)
     with odd_values_named(next((s for s in screens if s.odd_values), screens[0])):
         if ordinal_items:
             cal_moments = _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise)
@@ -533,15 +533,6 @@ def _left_out(dropped: int, read: int, source: str, missing, ordinal_items) -> t
     return (found,) if found is not None else ()
 
 
-def _words_coded(spec: Spec, loaded, missing_codes=()) -> tuple:
-    """The data read with the answer words of the model's 'answers' statements as their codes, as fit reads them
-    (``missing_codes``, --missing-codes, are no answer among the words too), and the notes of the reading: the
-    reader's and how the words were coded."""
-    frame, coding_notes = code_answer_words(spec, loaded.frame, loaded.source,
-                                            missing_codes=missing_codes_option(missing_codes))
-    return (loaded if frame is loaded.frame else replace(loaded, frame=frame)), (*loaded.notes, *coding_notes)
-
-
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1,
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
@@ -554,11 +545,10 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
                                                      options if missing is None else {**options, "missing": missing},
                                                      SPLIT_HALF_KEYWORDS)
-    loaded = load_data_for(spec, data, sheet, missing_codes, names_row=names_row)
-    check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source, loaded.column_hint())
-    loaded, notes = _words_coded(spec, loaded, missing_codes)
+    _, loaded, notes = read_inputs_with_notes(spec, data, sheet, missing_codes, names_row=names_row)  # as fit reads it
+    notes = tuple(notes)
     frame, source = loaded.frame, loaded.source
-    screen = screened(frame, spec.observed_names, source, loaded.non_answers, loaded.cautions)
+    screen = loaded
     with odd_values_named(screen):
         pair, halves = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)
     split = pair[0].calibration_result.n_obs + pair[0].loose.n_obs
