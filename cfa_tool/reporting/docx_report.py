@@ -313,6 +313,7 @@ def wide(table: ReportTable) -> bool:
 
 
 def _add_table(document, table: ReportTable, number: int) -> None:
+    table = T.without_ids(table)  # a document for a manuscript: no respondents' ids
     landscape = wide(table)
     _set_orientation(document, landscape)
     size, padding = (WIDE_SIZE, WIDE_PADDING) if landscape else (BODY_SIZE, CELL_PADDING)

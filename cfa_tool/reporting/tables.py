@@ -64,6 +64,7 @@ class ReportTable:
     section: str = ""  # the heading of the part of the report the table opens or continues ('' for none)
     heat: bool = False  # numeric cells shaded by sign and size where a view can colour them (HTML, Word)
     matrix: bool = False  # a matrix of the items: left out of the terminal beyond MAX_TERMINAL_MATRIX items
+    ids_column: int | None = None  # the column of respondents' ids (--id), which the Word report leaves out
 
     def to_dict(self) -> dict:
         """The table as JSON holds it (a saved result carries its report: see reporting.document)."""
@@ -72,7 +73,7 @@ class ReportTable:
                 "value_columns": None if self.value_columns is None else list(self.value_columns),
                 "values": None if self.values is None else [[_plain(v) for v in row] for row in self.values],
                 "faint": [list(f) for f in self.faint], "section": self.section, "heat": self.heat,
-                "matrix": self.matrix}
+                "matrix": self.matrix, "ids_column": self.ids_column}
 
     @classmethod
     def from_dict(cls, d: dict) -> "ReportTable":
@@ -83,7 +84,8 @@ class ReportTable:
                     None if d.get("value_columns") is None else tuple(map(str, d["value_columns"])),
                     None if d.get("values") is None else tuple(tuple(r) for r in d["values"]),
                     tuple((int(i), int(j)) for i, j in d.get("faint", ())), str(d.get("section", "")),
-                    bool(d.get("heat", False)), bool(d.get("matrix", False)))
+                    bool(d.get("heat", False)), bool(d.get("matrix", False)),
+                    None if d.get("ids_column") is None else int(d["ids_column"]))
         width = len(table.columns)
         if (not width or len(table.align) != width or any(a not in ("l", "r") for a in table.align)
                 or any(len(r) != width for r in table.rows)
@@ -91,7 +93,8 @@ class ReportTable:
                 or any(not (0 <= i < len(table.rows) and 0 <= j < width) for i, j in table.faint)
                 or (table.values is not None and (table.value_columns is None or any(
                     len(r) != len(table.value_columns) for r in table.values)))
-                or (table.note is not None and not isinstance(table.note, str))):
+                or (table.note is not None and not isinstance(table.note, str))
+                or (table.ids_column is not None and not 0 <= table.ids_column < width)):
             raise ValueError("a table that does not fit its columns")
         return table
 
@@ -905,6 +908,26 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
 #: the caution of a table that names rows by their ids (--id): ids identify the people who answered
 IDS_IDENTIFY = ("The ids identify respondents: leave this table out of anything published or shared (the row "
                 "numbers find the same rows in the data file).")
+#: what the Word report, written for a manuscript, says instead of showing the ids (:func:`without_ids`)
+IDS_LEFT_OUT = ("Respondents' ids are left out of this document, which is written for a manuscript; the row numbers "
+                "find the rows in the data file, and the terminal, HTML and JSON reports show the ids.")
+
+
+def without_ids(table: ReportTable) -> ReportTable:
+    """``table`` without its column of respondents' ids (a new-user trial found them in a Word report for a
+    client), its note saying so; the table itself when it has none."""
+    k = table.ids_column
+    if k is None:
+        return table
+
+    def drop(row: tuple) -> tuple:
+        return row[:k] + row[k + 1:]
+
+    faint = tuple((i, j if j < k else j - 1) for i, j in table.faint if j != k)
+    note = (table.note or "").replace(IDS_IDENTIFY, IDS_LEFT_OUT)
+    return replace(table, columns=drop(table.columns), align=drop(table.align), rows=tuple(map(drop, table.rows)),
+                   faint=faint, note=note if IDS_LEFT_OUT in note else f"{IDS_LEFT_OUT} {note}".strip(),
+                   ids_column=None)
 
 
 def case_table(result, group: int = 0) -> ReportTable | None:
@@ -934,8 +957,9 @@ def case_table(result, group: int = 0) -> ReportTable | None:
                  "2010): the squared Mahalanobis distance from the estimated means and covariances of all rows "
                  "(saturated, by EM), whose p comes from a chi-square with as many degrees of freedom as items "
                  "answered, and the distance under the fitted model.")
-    return _table(f"cases_{group}", "Rows that contribute most to the chi-square",
-                  [(h, "l" if h == "Id" else "r") for h in headers], body, note, values=(headers, values))
+    table = _table(f"cases_{group}", "Rows that contribute most to the chi-square",
+                   [(h, "l" if h == "Id" else "r") for h in headers], body, note, values=(headers, values))
+    return replace(table, ids_column=1) if named else table
 
 
 def item_table(result) -> ReportTable:

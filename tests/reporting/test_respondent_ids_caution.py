@@ -14,7 +14,7 @@ import cfa_tool
 from cfa_tool.reporting.docx_report import report_docx
 from cfa_tool.reporting.fit_document import fit_report
 from cfa_tool.reporting.html_report import report_html
-from cfa_tool.reporting.tables import IDS_IDENTIFY, case_table
+from cfa_tool.reporting.tables import IDS_IDENTIFY, IDS_LEFT_OUT, ReportTable, case_table, without_ids
 from cfa_tool.reporting.text_formats import report_markdown
 
 MODEL = "factor f: a, b, c, d\n"
@@ -43,8 +43,17 @@ def test_ids_in_the_rows_table_carry_the_caution_in_every_view():
     assert words in _plain(result.summary())
     assert words in _plain(report_markdown(report))
     assert words in _plain(report_html(report))
+    # the Word report, written for a manuscript, leaves the ids out and says so (a new-user trial found a client's
+    # respondent ids in it); the row numbers stay
     document = docx.Document(io.BytesIO(report_docx(report)))
-    assert words in " ".join(p.text for p in document.paragraphs)
+    text = " ".join(p.text for p in document.paragraphs)
+    cells = [c.text for t in document.tables for r in t.rows for c in r.cells]
+    assert words not in text and IDS_LEFT_OUT in " ".join(text.split())
+    assert not any(c.startswith("RID-") for c in cells) and "Id" not in cells
+    assert str(table.rows[0][0]) in cells  # the row number of the first row shown
+    # a saved report keeps which column holds the ids
+    assert ReportTable.from_dict(table.to_dict()).ids_column == 1
+    assert without_ids(without_ids(table)) == without_ids(table)
 
 
 def test_rows_named_by_numbers_only_carry_no_caution():
