@@ -72,12 +72,21 @@ def auxiliary_count(p: int, r: int) -> int:
     return r + p * r + r * (r + 1) // 2
 
 
-def joint_start(p: int, r: int, saturated: list[tuple[np.ndarray, np.ndarray]]) -> np.ndarray:
-    """eta of every group at the saturated (EM) means and covariances of the p + r columns."""
+def joint_start(p: int, r: int, saturated: list[tuple[np.ndarray, np.ndarray]], implied: list[np.ndarray]
+                ) -> np.ndarray:
+    """eta of every group from the saturated (EM) moments of the p + r columns, kept positive definite beside the
+    model's implied covariance ``implied`` of each group: the helpers' regression on the items, B = C' S^-1 with
+    residual covariance W = Omega - C' S^-1 C (S, C, Omega the EM parts), is kept and the joint moments rebuilt
+    around Sigma(theta): C = Sigma B', Omega = W + B Sigma B' (positive definite as W and Sigma are)."""
     out = []
-    for mu, sigma in saturated:
-        a, b = np.tril_indices(r)
-        out.append(np.concatenate([mu[p:], sigma[:p, p:].ravel(), sigma[p:, p:][a, b]]))
+    a, b = np.tril_indices(r)
+    for (mu, sigma), model_sigma in zip(saturated, implied):
+        S, C, omega = sigma[:p, :p], sigma[:p, p:], sigma[p:, p:]
+        B = np.linalg.solve(S, C).T
+        within = omega - C.T @ np.linalg.solve(S, C)
+        C_start = model_sigma @ B.T
+        omega_start = within + B @ model_sigma @ B.T
+        out.append(np.concatenate([mu[p:], C_start.ravel(), omega_start[a, b]]))
     return np.concatenate(out) if out else np.zeros(0)
 
 
@@ -260,14 +269,9 @@ class AuxiliaryFit:
         joint = self.likelihood
         return joint.n_total * joint.weights[g] * joint.group_discrepancy(self.theta, g)
 
-    def model_covariance(self) -> np.ndarray:
-        """The sampling covariance of the model's parameters: the model's block of (2/N) H^-1 of the joint observed
-        information H (the helpers' parameters estimated alongside, not held fixed; Kenward & Molenberghs 1998 for
-        the observed information with answers missing at random)."""
-        from cfa_tool.inference.standard_errors import observed_information, parameter_covariance
-
-        joint = self.likelihood
-        hessian = joint.observed_hessian(self.theta)
-        if hessian is None:  # higher-order factors: second derivatives of the analytic gradient
-            hessian = observed_information(joint.gradient, self.theta, central=False)
-        return parameter_covariance(hessian, joint.n_total)[: self.q, : self.q]
+    def observed_hessian(self) -> np.ndarray | None:
+        """The joint observed information (second derivatives of F) at the estimates in closed form, None with
+        higher-order factors.  The model's standard errors are its block of the inverse (the helpers' parameters
+        estimated alongside, not held fixed; Kenward & Molenberghs 1998 for the observed information with answers
+        missing at random)."""
+        return self.likelihood.observed_hessian(self.theta)

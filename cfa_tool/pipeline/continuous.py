@@ -233,7 +233,9 @@ def _estimate_with_helpers(spec: Spec, groups: list[tuple[str | None, SampleMome
                                      saturated, [GroupMoments(gm.covariance, gm.mean, gm.n_obs, design=gm.design)
                                                  for gm in joint])
     free = np.full(joint_model.n_free - joint_model.q, np.inf)
-    found = minimise(likelihood.evaluate, likelihood.value, np.concatenate([first.theta, joint_start(p, r, saturated)]),
+    found = minimise(likelihood.evaluate, likelihood.value, np.concatenate([first.theta, joint_start(
+                         p, r, saturated, [first.model.matrices(first.theta, g).implied_covariance()
+                                           for g in range(len(joint))])]),
                      np.concatenate([table.lower, -free]), np.concatenate([table.upper, free]),
                      max(1, options.max_iterations - first.iterations), gradient=likelihood.gradient,
                      hessian=likelihood.observed_hessian)
@@ -419,7 +421,11 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             robust = robust_fit(fit.chi_square, fit.df, c * fit.df, fit.baseline_chi_square, fit.baseline_df,
                                 c_base * fit.baseline_df, n_total, table.n_groups, test=FitTest.YUAN_BENTLER)
         elif est.auxiliary is not None:  # the model's block of the joint inverse (the helpers' parameters free)
-            cov_theta = est.auxiliary.model_covariance()
+            joint = est.auxiliary
+            hessian = joint.observed_hessian()
+            if hessian is None:  # higher-order factors: differences of the analytic gradient
+                hessian = observed_information(joint.likelihood.gradient, joint.theta, central=False)
+            cov_theta = parameter_covariance(hessian, n_total)[: table.n_free, : table.n_free]
         else:
             if options.information is Information.OBSERVED or not likelihood.complete_data:
                 # with incomplete data the observed information is the one valid under MAR (Kenward & Molenberghs 1998)
