@@ -99,7 +99,7 @@ class FitOptions:
                                   f"only, where they change nothing; leave one of the two out")
             if self.test is not FitTest.NORMAL:
                 raise OptionError(f"robust tests and standard errors ({Option.ROBUST}) are not offered with missing-data "
-                                  f"helpers ({Option.MISSING_HELPERS}) yet; leave one of the two out")
+                                  f"helpers ({Option.MISSING_HELPERS}): {HELPERS_NOT_ROBUST}; leave one of the two out")
         if self.missing is MissingData.FULL_INFORMATION and self.test is FitTest.SATORRA_BENTLER:
             raise OptionError("the Satorra-Bentler test needs complete rows; the robust test of full-information ML is "
                               f"the Yuan-Bentler one ({Option.ROBUST} chooses the test that suits the rows)")
@@ -107,6 +107,13 @@ class FitOptions:
             raise OptionError(f"the Yuan-Bentler test goes with full-information ML "
                               f"({Option.INCOMPLETE_ROWS.given('full-information')}); the robust test of complete rows "
                               f"is the Satorra-Bentler one ({Option.ROBUST} chooses the test that suits the rows)")
+
+
+#: why missing-data helpers are not offered with robust standard errors (also sampling weights, clusters, strata)
+HELPERS_NOT_ROBUST = ("the tool's robust sandwich for rows with gaps takes its bread from the expected information with "
+                      "the patterns of gaps held fixed, which is valid when answers are missing completely at random "
+                      "(Kenward & Molenberghs 1998; Savalei 2010), while helpers are given for answers missing at "
+                      "random given them")
 
 
 def helper_names(value) -> tuple[str, ...]:

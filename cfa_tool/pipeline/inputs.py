@@ -310,7 +310,10 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     clusters make the standard errors sandwich ones and the chi-square a scaled one.  With ordinal items
     the thresholds and correlations are weighted (pseudo-maximum likelihood) and their asymptotic
     covariance is the design-based one of the rows' influence functions, summed by cluster within strata.
-    ``options``: ``information``, ``test``, ``missing``, ``mi_threshold``, ``mi_top``, ``max_iterations``;
+    ``options``: ``information``, ``test``, ``missing``, ``mi_threshold``, ``mi_top``, ``max_iterations``,
+    ``missing_helpers`` (numeric columns outside the model, a list or one text separated by commas: auxiliary
+    variables of full-information ML in Graham's 2003 saturated-correlates form, which leave the model, its degrees
+    of freedom and fit indices as they are; estimation/auxiliary.py);
     ``diagnostics=False`` and ``modification_indices=False`` skip the extras (normality tests,
     reliability, residual and case diagnostics; score tests) in loops that only need estimates,
     standard errors and fit indices.
@@ -1074,7 +1077,8 @@ def with_design(result: FitResult, design) -> FitResult:
 def check_helper_columns(helpers: tuple[str, ...], frame: pd.DataFrame, source: str, spec: Spec, group: str | None,
                          id_column: str | None, design: DesignColumns | None) -> None:
     """Missing-data helpers (auxiliary variables) must be columns of the data other than the model's variables and
-    the group, id and design columns; a design that makes the standard errors robust ones is refused with them."""
+    the group, id and design columns, and hold numbers; a design that makes the standard errors robust ones is
+    refused with them (:data:`~cfa_tool.pipeline.continuous.HELPERS_NOT_ROBUST`)."""
     columns = [str(c) for c in frame.columns]
     taken = {**{name: "the group column" for name in [group] if name is not None},
              **{name: "the id column" for name in [id_column] if isinstance(name, str)},
@@ -1100,9 +1104,11 @@ def check_helper_columns(helpers: tuple[str, ...], frame: pd.DataFrame, source: 
                                   f"text{first}; helpers must be numbers (a helper of categories needs them coded as "
                                   f"numbers, one 0/1 column per category but one)")
     if design is not None and design.robust:
+        from cfa_tool.pipeline.continuous import HELPERS_NOT_ROBUST
+
         raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) are not offered with sampling weights, "
-                          f"clusters or strata yet (their robust standard errors and scaled test are not worked out "
-                          f"with helpers); frequency weights ({Option.WEIGHT_KIND.given('frequency')}) are")
+                          f"clusters or strata, whose standard errors are robust ones: {HELPERS_NOT_ROBUST}; frequency "
+                          f"weights ({Option.WEIGHT_KIND.given('frequency')}) are")
 
 
 def helpers_can_apply(fit_options, frame: pd.DataFrame, names: tuple[str, ...], group: str | None,

@@ -156,3 +156,4 @@ def test_a_helper_that_carries_the_missingness_removes_the_bias_of_a_loading():
     assert complete == pytest.approx(0.7, abs=0.05)  # the population value of the simulation
     assert complete - without.estimate > 5 * without.se
     assert abs(with_helper.estimate - complete) < 2 * with_helper.se
+
