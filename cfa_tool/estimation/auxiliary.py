@@ -28,9 +28,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.data.patterns import PatternData
-from cfa_tool.estimation.fiml import MissingDataLikelihood, _mean_second_derivatives, _trace_contract, _trace_weights
+from cfa_tool.estimation.fiml import MissingDataLikelihood, model_second_order
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
-from cfa_tool.model.rank_two import second_derivative_contraction
 
 
 def _joint_directions(p: int, r: int, observed_variances: bool) -> tuple[np.ndarray, np.ndarray]:
@@ -162,36 +161,15 @@ class AuxiliaryLikelihood(MissingDataLikelihood):
     """The full-information discrepancy of the model with auxiliary columns (:class:`JointModel`); its
     ``patterns`` and saturated moments are those of the p + r columns."""
 
-    def observed_hessian(self, theta: np.ndarray) -> np.ndarray | None:
-        """Second derivatives in closed form as :meth:`MissingDataLikelihood.observed_hessian` (same formula): the
-        auxiliaries' parameters enter Sigma* and mu* linearly, so the second-derivative term is the model's alone,
-        with M and m restricted to the items (no higher-order factors; None otherwise)."""
+    def _second_order(self, g: int, mats: JointMatrices, M: np.ndarray, mean_gradient: np.ndarray) -> np.ndarray:
+        """tr(M D_ab) + m' dmu_ab over the joint parameters (:meth:`MissingDataLikelihood.observed_hessian`, whose
+        formula is unchanged): the helpers' parameters enter Sigma* and mu* linearly, so the term is the model's
+        alone, with M and m restricted to the items."""
         joint = self.model
-        q, p, Q = joint.q, joint.items, joint.n_free
-        total = np.zeros((Q, Q))
-        for g, w_group in enumerate(self.weights):
-            state = self._pattern_state(theta, g)
-            if state is None:
-                return None
-            mats, A, w, ATA, M, Ad, mean_gradient = state
-            if mats.B.any():
-                return None
-            P, PP, _ = A.shape
-            d_sigma, d_mu = self._jacobian(theta, g)
-            same = _trace_contract(_trace_weights(A, A, w), d_sigma, d_sigma)
-            mixed = _trace_contract(_trace_weights(A, ATA, w), d_sigma, d_sigma)
-            t3 = (Ad * w[:, None]).T @ A.reshape(P, PP * PP)
-            cross = d_sigma.reshape(Q, PP * PP) @ t3.reshape(PP * PP, PP) @ d_mu.T
-            H = (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T)
-                 + 2.0 * d_mu @ np.tensordot(w, A, axes=1) @ d_mu.T)
-            model = joint.structured
-            codes, rows, cols = model._codes[g], model._rows[g], model._cols[g]
-            second = second_derivative_contraction(model.all_second_orders[g], M[:p, :p], mats.model.L, mats.model.P)
-            second += _mean_second_derivatives(codes, rows, cols, mean_gradient[:p])
-            J = model._J[g]
-            H[:q, :q] += J.T @ second @ J
-            total += w_group * H
-        return 0.5 * (total + total.T)
+        out = np.zeros((joint.n_free, joint.n_free))
+        p = joint.items
+        out[: joint.q, : joint.q] = model_second_order(joint.structured, g, mats.model, M[:p, :p], mean_gradient[:p])
+        return out
 
 
 class LinearJointModel:
