@@ -1133,8 +1133,16 @@ def with_helpers(moments: SampleMoments, frame: pd.DataFrame, helpers: tuple[str
     the means and covariances of items and helpers together (the saturated model of the joint likelihood)."""
     from cfa_tool.data.moments import moments_with_gaps, numeric_columns
 
+    values = numeric_columns(frame, helpers, source)
+    infinite = np.argwhere(np.isinf(values))
+    if len(infinite):
+        from cfa_tool.data.kept_rows import cell_words
+
+        row, col = infinite[0]
+        raise DataError(f"{source}: the missing-data helper '{printable(helpers[col])}' has an infinite value in "
+                        f"{cell_words(frame, helpers[col], row_numbers(frame)[row])}")
     where = pd.Index(row_numbers(frame)).get_indexer(moments.row_numbers)
-    rows = np.hstack([moments.rows, numeric_columns(frame, helpers, source)[where]])
+    rows = np.hstack([moments.rows, values[where]])
     where_said = source if moments.group is None else f"{source} (group {moments.group})"
     weights = moments.design.weights if moments.design is not None else None
     joint = moments_with_gaps(rows, moments.names + helpers, where_said, weights)
