@@ -91,7 +91,8 @@ def test_a_just_identified_model_reproduces_the_joint_em_moments_of_its_items():
     """A one-factor model of three items is just identified (9 parameters for 3 means and 6 covariances), so with
     helpers its implied means and covariances are the saturated (EM) estimates of items and helpers together,
     restricted to the items (data/em.py), and its chi-square is zero; without helpers they would be the EM
-    estimates of the items alone, which differ when the gaps go with the helper."""
+    estimates of the items alone, which differ when the gaps go with the helper.  With gaps in one item only, those
+    moments are also checked against their closed form."""
     rng = np.random.default_rng(3)
     n = 500
     f = rng.normal(size=n)
@@ -107,6 +108,21 @@ def test_a_just_identified_model_reproduces_the_joint_em_moments_of_its_items():
     np.testing.assert_allclose(group.implied_mean, joint.means[:3], atol=1e-6)
     items_only = moments_with_gaps(y, ("y1", "y2", "y3"), "<simulated>")
     assert abs(items_only.means[0] - joint.means[0]) > 0.05  # the helper moves the first item's mean
+    # the gaps are monotone (only y1 has them), so the ML estimates are explicit (Anderson 1957 factored likelihood;
+    # Little & Rubin 2002, sec. 7.2): the complete columns' moments from every row, y1's regression on them from the
+    # rows that answer it
+    complete = rows[:, 1:]
+    mu_c = complete.mean(axis=0)
+    sigma_c = np.cov(complete, rowvar=False, bias=True)
+    seen = ~np.isnan(rows[:, 0])
+    design = np.column_stack([np.ones(seen.sum()), complete[seen]])
+    coef, *_ = np.linalg.lstsq(design, rows[seen, 0], rcond=None)
+    residual = rows[seen, 0] - design @ coef
+    beta = coef[1:]
+    np.testing.assert_allclose(group.implied_mean[0], coef[0] + beta @ mu_c, atol=1e-6)
+    np.testing.assert_allclose(group.implied_covariance[0, 0], residual @ residual / seen.sum() + beta @ sigma_c @ beta,
+                               atol=1e-6)
+    np.testing.assert_allclose(group.implied_covariance[0, 1:], (beta @ sigma_c)[:2], atol=1e-6)
 
 
 def test_closed_form_second_derivatives_match_differences_of_the_gradient():
