@@ -45,6 +45,7 @@ from cfa_tool.options import Option
 from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
 if TYPE_CHECKING:  # the full-information likelihood is imported by the fits that use it
+    from cfa_tool.estimation.auxiliary import AuxiliaryFit
     from cfa_tool.estimation.fiml import MissingDataLikelihood
 
 
@@ -149,7 +150,7 @@ class Estimation:
     message: str
     # with missing-data helpers: the joint fit of items and helpers (estimation.auxiliary.AuxiliaryFit), of which
     # theta and value above are the model's part and the joint discrepancy; likelihood is then the model's alone
-    auxiliary: object | None = None
+    auxiliary: AuxiliaryFit | None = None
 
 
 def ordered_moments(moments: SampleMoments, observed: tuple[str, ...]) -> GroupMoments:
@@ -545,7 +546,7 @@ HELPERS_WITHOUT_SCORE_TESTS = ("modification indices are not computed with missi
                                "the helpers to see them")
 
 
-def _helper_baseline(auxiliary, options: FitOptions) -> tuple[float, int]:
+def _helper_baseline(auxiliary: AuxiliaryFit, options: FitOptions) -> tuple[float, int]:
     """The baseline chi-square and df with missing-data helpers (Savalei & Bentler 2009: estimation.auxiliary);
     an EstimationError when its search does not converge (the incremental indices would have no baseline)."""
     from cfa_tool.errors import EstimationError
