@@ -61,7 +61,19 @@ def build_parser(command: str | None = None) -> argparse.ArgumentParser:
     from cfa_tool import commands
 
     commands.add_parsers(sub, command)  # one module per command (cfa_tool/commands/)
+    _refuse_missing_helpers(sub)
     return parser
+
+
+def _refuse_missing_helpers(sub) -> None:
+    """--missing-helpers (auxiliary variables in the full-information likelihood) on any command but fit: a
+    one-line error, never ignored (the other commands do not carry the helpers into their fits yet)."""
+    from cfa_tool.commands.options import CannotApply
+
+    for name, parser in sub.choices.items():
+        if name != "fit":
+            parser.add_argument("--missing-helpers", action=CannotApply, dest="_refused_missing_helpers",
+                                why="missing-data helpers (auxiliary variables) are offered by fit only so far")
 
 
 def _version() -> str:

@@ -196,6 +196,9 @@ class FitMethod:
     items: Items = Items.CONTINUOUS
     thresholds: bool = False  # ordinal items: thresholds are parameters (the form used with groups)
     clustered: bool = False  # robust standard errors from per-cluster sums of the rows' scores (a sampling design)
+    #: full-information ML only: the columns beside the model in its likelihood (auxiliary variables in Graham's
+    #: 2003 saturated-correlates form, estimation/auxiliary.py)
+    helpers: tuple[str, ...] = ()
 
     @property
     def ordinal(self) -> bool:
@@ -225,6 +228,8 @@ class FitMethod:
                      + ("cluster-robust standard errors" if self.clustered else "robust (Huber-White) standard errors"))
         if self.full_information:
             text += " (full information, incomplete rows included)"
+        if self.helpers:
+            text += f", auxiliary variables {', '.join(self.helpers)} (saturated correlates)"
         if not self.test.robust and self.information in (Information.EXPECTED, Information.OBSERVED):
             text += f", standard errors from the {self.information.label}"
         return text
@@ -232,7 +237,8 @@ class FitMethod:
     def to_dict(self) -> dict:
         return {"estimator": self.estimator.value, "test": self.test.value, "information": self.information.value,
                 "missing": self.missing.value, "weighting": self.weighting.value if self.weighting else None,
-                "items": self.items.value, "thresholds_as_parameters": self.thresholds, "clustered": self.clustered}
+                "items": self.items.value, "thresholds_as_parameters": self.thresholds, "clustered": self.clustered,
+                "missing_helpers": list(self.helpers)}
 
 
 class DecisionRule(Choice):

@@ -30,9 +30,9 @@ TEST_NAME = "Little's (1988) test of answers missing completely at random"
 READING = ("A non-significant test does not show that the answers are missing completely at random: it compares "
            "only the items analysed across the patterns of gaps, and missingness that goes with other variables "
            "(age, say) can escape it. Full-information ML needs only that answers are missing at random given the "
-           "items analysed; a variable that goes with the missingness enters this tool's fit only as a model "
-           "variable (an extra item, which changes the model fitted, or the group column): auxiliary variables "
-           "beside the model are not offered.")
+           "variables in its likelihood: the items analysed, and any auxiliary variables given with "
+           "--missing-helpers (from Python, missing_helpers=[...]), which enter the likelihood beside the model "
+           "without changing it (Graham 2003); a variable that goes with the missingness belongs there.")
 #: what a fit of the complete rows only assumes, and where the test is given instead
 LISTWISE_NEEDS = ("Leaving out the rows with gaps assumes that the answers are missing completely "
                   f"at random; {TEST_NAME} is given with full-information ML, the default when answers are missing.")

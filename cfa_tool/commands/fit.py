@@ -21,6 +21,12 @@ def add_parser(sub) -> None:
                                                     "caution about rows with one answer throughout show it beside the "
                                                     "row number")
     O.add_design_options(fit)
+    fit.add_argument("--missing-helpers", metavar="COLUMNS", default=None,
+                     help="numeric columns outside the model that go with the answers or with their being missing (age, "
+                          "say), comma-separated: with full-information ML they enter the likelihood as auxiliary "
+                          "variables (Graham's 2003 saturated correlates), so that answers need be missing at random "
+                          "only given the items and these columns; the model, its degrees of freedom and its fit "
+                          "indices are unchanged")
 
 
 def add_fit_outputs(p: argparse.ArgumentParser) -> None:
@@ -54,5 +60,6 @@ def run(args: argparse.Namespace) -> int:
                  missing_codes=args.missing_codes, keep=args.keep, information=args.information,
                  mi_threshold=args.mi_threshold, mi_top=args.mi_top, max_iterations=args.max_iterations,
                  test=O.fit_test(args), missing=args.missing, ordinal=O.ordinal_arg(args.ordinal),
-                 ordinal_estimator=args.ordinal_estimator, id_column=getattr(args, "id", None), **O.design_args(args))
+                 ordinal_estimator=args.ordinal_estimator, id_column=getattr(args, "id", None), **O.design_args(args),
+                 **({"missing_helpers": args.missing_helpers} if getattr(args, "missing_helpers", None) is not None else {}))
     return emit(args, result, diagram_files(args, result))  # a model that does not converge raises EstimationError (exit 3)

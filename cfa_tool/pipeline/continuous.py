@@ -45,6 +45,7 @@ from cfa_tool.options import Option
 from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
 if TYPE_CHECKING:  # the full-information likelihood is imported by the fits that use it
+    from cfa_tool.estimation.auxiliary import AuxiliaryFit
     from cfa_tool.estimation.fiml import MissingDataLikelihood
 
 
@@ -65,6 +66,9 @@ class FitOptions:
     # rows with missing answers: full information or listwise; None lets cfa_tool.fit decide from the
     # data (full information when a model variable has a gap), and means listwise elsewhere
     missing: MissingData | None = None
+    # columns beside the model in the full-information likelihood (auxiliary variables, Graham 2003:
+    # estimation/auxiliary.py); full-information ML only
+    missing_helpers: tuple[str, ...] = ()
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "test", FitTest.parse(self.test, "test"))
@@ -88,6 +92,15 @@ class FitOptions:
             object.__setattr__(self, "mi_top", check.whole_number("the number of modification indices to show", self.mi_top, 0))
         object.__setattr__(self, "max_iterations",
                            check.whole_number("the iteration limit", self.max_iterations, 1, check.MAX_ITERATIONS))
+        object.__setattr__(self, "missing_helpers", helper_names(self.missing_helpers))
+        if self.missing_helpers:
+            if self.missing is MissingData.LISTWISE:
+                raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) enter the full-information "
+                                  f"likelihood, and {Option.INCOMPLETE_ROWS.given('listwise')} fits the complete rows "
+                                  f"only, where they change nothing; leave one of the two out")
+            if self.test is not FitTest.NORMAL:
+                raise OptionError(f"robust tests and standard errors ({Option.ROBUST}) are not offered with missing-data "
+                                  f"helpers ({Option.MISSING_HELPERS}): {HELPERS_NOT_ROBUST}; leave one of the two out")
         if self.missing is MissingData.FULL_INFORMATION and self.test is FitTest.SATORRA_BENTLER:
             raise OptionError("the Satorra-Bentler test needs complete rows; the robust test of full-information ML is "
                               f"the Yuan-Bentler one ({Option.ROBUST} chooses the test that suits the rows)")
@@ -95,6 +108,32 @@ class FitOptions:
             raise OptionError(f"the Yuan-Bentler test goes with full-information ML "
                               f"({Option.INCOMPLETE_ROWS.given('full-information')}); the robust test of complete rows "
                               f"is the Satorra-Bentler one ({Option.ROBUST} chooses the test that suits the rows)")
+
+
+#: why missing-data helpers are not offered with robust standard errors (also sampling weights, clusters, strata)
+HELPERS_NOT_ROBUST = ("the tool's robust sandwich for rows with gaps takes its bread from the expected information with "
+                      "the patterns of gaps held fixed, which is valid when answers are missing completely at random "
+                      "(Kenward & Molenberghs 1998; Savalei 2010), while helpers are given for answers missing at "
+                      "random given them")
+
+
+def helper_names(value) -> tuple[str, ...]:
+    """The missing-data helpers' column names as a tuple: one name, names separated by commas, or a list of names."""
+    if value is None:
+        return ()
+    if isinstance(value, str):
+        value = [value]
+    if not isinstance(value, (list, tuple)) or not all(isinstance(v, str) for v in value):
+        raise OptionError(f"{Option.MISSING_HELPERS} takes column names (a list of them, or one text of names "
+                          f"separated by commas), not {type(value).__name__}")
+    names = tuple(part.strip() for v in value for part in v.split(","))
+    if any(not name for name in names):
+        raise OptionError(f"{Option.MISSING_HELPERS} has an empty column name; name each column once, separated by "
+                          f"commas")
+    if len(set(names)) != len(names):
+        twice = next(name for name in names if names.count(name) > 1)
+        raise OptionError(f"{Option.MISSING_HELPERS} names the column '{twice}' twice")
+    return names
 
 
 @dataclass(frozen=True)
@@ -109,6 +148,9 @@ class Estimation:
     converged: bool
     iterations: int
     message: str
+    # with missing-data helpers: the joint fit of items and helpers (estimation.auxiliary.AuxiliaryFit), of which
+    # theta and value above are the model's part and the joint discrepancy; likelihood is then the model's alone
+    auxiliary: AuxiliaryFit | None = None
 
 
 def ordered_moments(moments: SampleMoments, observed: tuple[str, ...]) -> GroupMoments:
@@ -123,6 +165,8 @@ def ordered_moments(moments: SampleMoments, observed: tuple[str, ...]) -> GroupM
 def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options: FitOptions = FitOptions(),
              start: np.ndarray | None = None) -> Estimation:
     """Build the model and minimise the ML discrepancy (no standard errors, no indices)."""
+    if options.missing_helpers:
+        return _estimate_with_helpers(spec, groups, options, start)
     multi = len(groups) > 1 or groups[0][0] is not None
     fiml = options.missing is MissingData.FULL_INFORMATION
     labels = tuple(label for label, _ in groups) if multi else None
@@ -159,6 +203,57 @@ def estimate(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options
     opt = found.result
     message = "converged" if opt.converged else nonconvergence_message(found, table.free_labels, options.max_iterations, table.lower, table.upper)
     return Estimation(table, model, likelihood, opt.theta, opt.value, opt.converged, opt.iterations, message)
+
+
+def _estimate_with_helpers(spec: Spec, groups: list[tuple[str | None, SampleMoments]], options: FitOptions,
+                           start: np.ndarray | None) -> Estimation:
+    """The model fitted with missing-data helpers in the saturated-correlates form (estimation.auxiliary): the
+    model without them first (its full-information fit, the start of the joint search and the model's own
+    likelihood for what the helpers do not change: identification, case diagnostics), then the joint search over
+    items and helpers.  ``groups``' moments hold the items and the helpers, their covariance the EM estimate of
+    both."""
+    from cfa_tool.data.em import em_saturated
+    from cfa_tool.data.patterns import pattern_data
+    from cfa_tool.estimation.auxiliary import AuxiliaryFit, AuxiliaryLikelihood, JointModel, joint_start
+    from cfa_tool.estimation.fiml import MissingDataLikelihood
+    from cfa_tool.estimation.optimizer import minimise
+
+    helpers = options.missing_helpers
+    if any(h not in m.names for _, m in groups for h in helpers):
+        raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) are offered by fit only so far; "
+                          f"leave them out here")
+    multi = len(groups) > 1 or groups[0][0] is not None
+    table, model = model_structure(spec, tuple(label for label, _ in groups) if multi else None, True)
+    p, r = len(table.observed), len(helpers)
+    joint = [ordered_moments(m, table.observed + helpers) for _, m in groups]
+    weights = [gm.design.weights if gm.design is not None else None for gm in joint]
+    items_saturated = [em_saturated(pattern_data(gm.rows[:, :p], w))[:2] for gm, w in zip(joint, weights)]
+    items_only = [(label, replace(m, names=table.observed, covariance=sigma, means=mu, rows=gm.rows[:, :p]))
+                  for (label, m), gm, (mu, sigma) in zip(groups, joint, items_saturated)]
+    first = estimate(spec, items_only, replace(options, missing_helpers=()), start)
+    if not first.converged:
+        return first
+    summaries = [GroupMoments(gm.covariance[:p, :p], gm.mean[:p], gm.n_obs, design=gm.design) for gm in joint]
+    items = MissingDataLikelihood(model, first.likelihood.patterns, items_saturated, summaries)
+    saturated = [(gm.mean, gm.covariance) for gm in joint]
+    joint_model = JointModel(model, r, len(joint))
+    likelihood = AuxiliaryLikelihood(joint_model, [pattern_data(gm.rows, w) for gm, w in zip(joint, weights)],
+                                     saturated, [GroupMoments(gm.covariance, gm.mean, gm.n_obs, design=gm.design)
+                                                 for gm in joint])
+    free = np.full(joint_model.n_free - joint_model.q, np.inf)
+    found = minimise(likelihood.evaluate, likelihood.value, np.concatenate([first.theta, joint_start(
+                         p, r, saturated, [first.model.matrices(first.theta, g).implied_covariance()
+                                           for g in range(len(joint))])]),
+                     np.concatenate([table.lower, -free]), np.concatenate([table.upper, free]),
+                     max(1, options.max_iterations - first.iterations), gradient=likelihood.gradient,
+                     hessian=likelihood.observed_hessian)
+    iterations = first.iterations + found.iterations
+    message = ("converged" if found.converged else
+               f"the fit with the missing-data helpers {', '.join(helpers)} did not converge in {iterations} iterations "
+               f"(the model without them did); the helpers may go with the items too closely (a helper that nearly "
+               f"repeats an item), or the iteration limit ({Option.MAX_ITERATIONS}) may be too low")
+    return Estimation(table, model, items, found.theta[: joint_model.q].copy(), found.value, found.converged,
+                      iterations, message, AuxiliaryFit(helpers, likelihood, found.theta, tuple(items_saturated)))
 
 
 def full_information_data(moments: list[GroupMoments]) -> tuple[list, list, list[GroupMoments]]:
@@ -311,6 +406,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             # the factorisations of Sigma and S the discrepancy made at the estimates: the same numbers, made once
             base_chi, base_df, loglik = normal_theory_parts(per_group, [(likelihood.sigma_inverse(theta, g), logdet_s)
                                                                         for g, logdet_s in enumerate(likelihood.logdet_S)])
+        elif est.auxiliary is not None:
+            (base_chi, base_df), loglik = _helper_baseline(est.auxiliary, options), est.auxiliary.log_likelihood()
         else:
             from cfa_tool.estimation.fiml import fiml_baseline, fiml_log_likelihood
 
@@ -331,6 +428,12 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             cov_theta, c, c_base = robust_missing(likelihood, theta, saturated, fit.df, fit.baseline_df)
             robust = robust_fit(fit.chi_square, fit.df, c * fit.df, fit.baseline_chi_square, fit.baseline_df,
                                 c_base * fit.baseline_df, n_total, table.n_groups, test=FitTest.YUAN_BENTLER)
+        elif est.auxiliary is not None:  # the model's block of the joint inverse (the helpers' parameters free)
+            joint = est.auxiliary
+            hessian = joint.observed_hessian()
+            if hessian is None:  # higher-order factors: differences of the analytic gradient
+                hessian = observed_information(joint.likelihood.gradient, joint.theta, central=False)
+            cov_theta = parameter_covariance(hessian, n_total)[: table.n_free, : table.n_free]
         else:
             if options.information is Information.OBSERVED or not likelihood.complete_data:
                 # with incomplete data the observed information is the one valid under MAR (Kenward & Molenberghs 1998)
@@ -341,7 +444,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
             cov_theta = parameter_covariance(information, n_total,
                                              factor if information is evaluation.information else None)
         inference = wald_inference(values, model.J, cov_theta)
-        if options.modification_indices:
+        if options.modification_indices and est.auxiliary is None:
             mis = modification_indices(model, theta, likelihood, exogenous_factors(spec), mats, factor)
     else:
         # a model that is not identified often shows itself by not converging: say so when it is the cause
@@ -361,7 +464,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         # shared below; unweighted rows are those the sample moments were computed from
         whitened = (whitened_rows(gm.rows, (gm.mean, gm.covariance) if gm.design is None else None)
                     if options.diagnostics and gm.rows is not None else None)
-        share = likelihood.n_total * likelihood.weights[g] * likelihood.group_discrepancy(theta, g) if est.converged else None
+        share = (None if not est.converged else est.auxiliary.group_chi_square(g) if est.auxiliary is not None else
+                 likelihood.n_total * likelihood.weights[g] * likelihood.group_discrepancy(theta, g))
         group_results.append(
             GroupResult(
                 label=label,
@@ -398,7 +502,10 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     else:
         information = Information.EXPECTED if likelihood.complete_data else Information.OBSERVED
     method = FitMethod(Estimator.MAXIMUM_LIKELIHOOD, options.test, information,
-                       MissingData.LISTWISE if likelihood.complete_data else MissingData.FULL_INFORMATION)
+                       MissingData.LISTWISE if likelihood.complete_data else MissingData.FULL_INFORMATION,
+                       helpers=est.auxiliary.names if est.auxiliary is not None else ())
+    if est.auxiliary is not None and est.converged and options.modification_indices:
+        warnings.append(HELPERS_WITHOUT_SCORE_TESTS)
     each = [r.data.ranges for r in group_results]
     if all(each):  # every group's (lowest, highest) answer per item: the lowest and highest over the groups
         extremes = np.array(each)
@@ -407,7 +514,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         ranges = ()
     overall = DataSummary(first.source, sum(m.rows_read for _, m in groups), sum(m.rows_dropped for _, m in groups),
                           n_total, table.observed, item_means, item_sds, ranges=ranges)
-    missingness = (_completely_at_random(likelihood, table.groups if multi else (None,))
+    missingness = (_completely_at_random(likelihood, table.groups if multi else (None,),
+                                         est.auxiliary.items_saturated if est.auxiliary is not None else None)
                    if options.diagnostics and not likelihood.complete_data else None)
     return fit_result(spec=spec, method=method, converged=est.converged, iterations=est.iterations, message=est.message,
                       theta=theta, n_obs=n_total, data=overall, observed=table.observed, latent=table.latent, fit=fit,
@@ -417,7 +525,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                       completely_at_random=missingness)
 
 
-def _completely_at_random(likelihood: MissingDataLikelihood, labels):
+def _completely_at_random(likelihood: MissingDataLikelihood, labels, saturated=None):
     """Little's (1988) test from the full-information likelihood's patterns and EM moments (None with sampling
     weights, clusters or strata, for which its chi-square reference does not hold: rows are not independent draws
     counted once each)."""
@@ -427,8 +535,30 @@ def _completely_at_random(likelihood: MissingDataLikelihood, labels):
     if any(d is not None and (d.kind is not WeightKind.FREQUENCY or d.clusters is not None or d.strata is not None)
            for d in designs):
         return None
-    return completely_at_random_test([(label, data, gm.mean, gm.covariance)
-                                      for label, data, gm in zip(labels, likelihood.patterns, likelihood.groups)])
+    saturated = saturated or [(gm.mean, gm.covariance) for gm in likelihood.groups]  # the items' own EM estimates
+    return completely_at_random_test([(label, data, mu, sigma)
+                                      for label, data, (mu, sigma) in zip(labels, likelihood.patterns, saturated)])
+
+
+#: the note of a fit with missing-data helpers, which has no modification indices
+HELPERS_WITHOUT_SCORE_TESTS = ("modification indices are not computed with missing-data helpers (auxiliary variables): "
+                               "their score tests would need the helpers' parameters beside the model's; fit without "
+                               "the helpers to see them")
+
+
+def _helper_baseline(auxiliary: AuxiliaryFit, options: FitOptions) -> tuple[float, int]:
+    """The baseline chi-square and df with missing-data helpers (Savalei & Bentler 2009: estimation.auxiliary);
+    an EstimationError when its search does not converge (the incremental indices would have no baseline)."""
+    from cfa_tool.errors import EstimationError
+    from cfa_tool.estimation.auxiliary import auxiliary_baseline
+
+    joint = auxiliary.likelihood
+    found = auxiliary_baseline(joint.patterns, [(gm.mean, gm.covariance) for gm in joint.groups], joint.groups,
+                               joint.model.items, joint.model.r, options.max_iterations)
+    if found is None:
+        raise EstimationError("the baseline model of the fit with missing-data helpers (the items uncorrelated, the "
+                              "helpers free) did not converge, so CFI and TLI cannot be computed; try without helpers")
+    return found
 
 
 def _entry_standardization(model: StructuredModel) -> list:

@@ -312,7 +312,10 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     clusters make the standard errors sandwich ones and the chi-square a scaled one.  With ordinal items
     the thresholds and correlations are weighted (pseudo-maximum likelihood) and their asymptotic
     covariance is the design-based one of the rows' influence functions, summed by cluster within strata.
-    ``options``: ``information``, ``test``, ``missing``, ``mi_threshold``, ``mi_top``, ``max_iterations``;
+    ``options``: ``information``, ``test``, ``missing``, ``mi_threshold``, ``mi_top``, ``max_iterations``,
+    ``missing_helpers`` (numeric columns outside the model, a list or one text separated by commas: auxiliary
+    variables of full-information ML in Graham's 2003 saturated-correlates form, which leave the model, its degrees
+    of freedom and fit indices as they are; estimation/auxiliary.py);
     ``diagnostics=False`` and ``modification_indices=False`` skip the extras (normality tests,
     reliability, residual and case diagnostics; score tests) in loops that only need estimates,
     standard errors and fit indices.
@@ -322,7 +325,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     misbehaved and what to try; a returned result has always converged, so its ``fit`` is always set.
     """
     opt.group_column(group)
-    fit_options = make_options(options, FIT_KEYWORDS)
+    fit_options = make_options(options, FIT_KEYWORDS, helpers=True)
     design = design_columns(weights, cluster, strata, weight_kind)
     if covariance is None:
         given = [name for name, value in (("n_obs", n_obs), ("means", means), ("variables", variables), ("sds", sds))
@@ -348,6 +351,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         else:
             moments, notes = read_summary_file(data)
         check_columns(spec, list(moments.names), moments.source)
+        if fit_options.missing_helpers:
+            raise OptionError(f"summary statistics hold no rows, so missing-data helpers ({Option.MISSING_HELPERS}), "
+                              f"which enter the likelihood of the rows with gaps, cannot apply; give the raw data")
         if fit_options.missing is not None:  # a matrix has no rows, so how rows with gaps are handled cannot apply
             raise OptionError(f"summary statistics hold no rows, so the handling of missing answers "
                               f"({Option.INCOMPLETE_ROWS}) cannot apply; remove the option")
@@ -364,6 +370,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:
         _id_can_apply(spec, ordinal, fit_options)
+    if fit_options.missing_helpers:
+        check_helper_columns(fit_options.missing_helpers, frame, source, spec, group, id_column, design)
     loaded = analysed_odd_values(loaded, spec, group)
     by_row = ids_by_row_number(ids, frame)
     with odd_values_named(loaded):
@@ -933,6 +941,10 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     if design is not None:
         frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
         notes = list(notes) + design_notes
+    if ordinal_items and fit_options.missing_helpers:
+        raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) enter the full-information likelihood of "
+                          f"continuous items; ordinal items are fitted by least squares on polychoric correlations, "
+                          f"where they cannot apply; leave them out")
     if ordinal_items:
         with blas_threads_for(len(spec.observed_names)):
             result = _fit_ordinal(spec, frame, source, ordinal_items, group, reference_group, fit_options, ordinal_estimator,
@@ -947,6 +959,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     values = loaded.items.of(frame, spec.observed_names) if loaded.items is not None else None
     if design is not None:  # a chosen information is refused for the design before the missing rows' reason
         design_test(fit_options, design)
+    if fit_options.missing_helpers:
+        helpers_can_apply(fit_options, frame, spec.observed_names, group, values)
     fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group, values)
     notes = missing_notes + notes
     notes += few_category_notes(frame, spec.observed_names, values)
@@ -958,6 +972,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
         groups, group_notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design,
                                           values)
         notes += group_notes
+        if fit_options.missing_helpers:
+            groups = [(label, with_helpers(m, frame, fit_options.missing_helpers, source)) for label, m in groups]
         if ids is not None:  # the rows that answer nothing named by their ids too (a footer: its text)
             by_row = ids_by_row_number(ids, ids)  # row numbers by the one rule (data.moments.row_numbers)
             groups = [(label, replace(m, unanswered_ids=tuple(by_row.get(int(r)) for r in m.unanswered_rows)))
@@ -1060,6 +1076,81 @@ def with_design(result: FitResult, design) -> FitResult:
     method = replace(result.method, clustered=design.columns.cluster is not None)
     return replace(result, design=design, fit=fit, method=method, warnings=warnings,
                    estimator=f"{method.sentence(len(result.groups))}; {design.status()}", problems=problems)
+
+
+def check_helper_columns(helpers: tuple[str, ...], frame: pd.DataFrame, source: str, spec: Spec, group: str | None,
+                         id_column: str | None, design: DesignColumns | None) -> None:
+    """Missing-data helpers (auxiliary variables) must be columns of the data other than the model's variables and
+    the group, id and design columns, and hold numbers; a design that makes the standard errors robust ones is
+    refused with them (:data:`~cfa_tool.pipeline.continuous.HELPERS_NOT_ROBUST`)."""
+    columns = [str(c) for c in frame.columns]
+    taken = {**{name: "the group column" for name in [group] if name is not None},
+             **{name: "the id column" for name in [id_column] if isinstance(name, str)},
+             **{name: f"the {what} column" for what, name in (design.names if design is not None else ())}}
+    for name in helpers:
+        if name not in columns:
+            guess = close_names(name, columns)
+            hint = f"; did you mean '{printable(guess[0])}'?" if guess else ""
+            raise OptionError(f"the missing-data helper '{printable(name)}' ({Option.MISSING_HELPERS}) is not a column "
+                              f"of {source}{hint}")
+        if name in spec.observed_names:
+            raise OptionError(f"'{printable(name)}' is a variable of the model and cannot also be a missing-data helper "
+                              f"({Option.MISSING_HELPERS}: columns outside the model)")
+        if name in taken:
+            raise OptionError(f"'{printable(name)}' is {taken[name]} and cannot also be a missing-data helper "
+                              f"({Option.MISSING_HELPERS})")
+        column = frame[frame.columns[columns.index(name)]]
+        if column.dtype.kind not in "iuf":
+            text = column[column.notna() & pd.to_numeric(column, errors="coerce").isna()]
+            if len(text) or column.dtype.kind == "b":
+                first = f" ('{printable(str(text.iloc[0]))[:40]}' in row {row_numbers(text)[0]})" if len(text) else ""
+                raise OptionError(f"the missing-data helper '{printable(name)}' ({Option.MISSING_HELPERS}) holds "
+                                  f"text{first}; helpers must be numbers (a helper of categories needs them coded as "
+                                  f"numbers, one 0/1 column per category but one)")
+    if design is not None and design.robust:
+        from cfa_tool.pipeline.continuous import HELPERS_NOT_ROBUST
+
+        raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) are not offered with sampling weights, "
+                          f"clusters or strata, whose standard errors are robust ones: {HELPERS_NOT_ROBUST}; frequency "
+                          f"weights ({Option.WEIGHT_KIND.given('frequency')}) are")
+
+
+def helpers_can_apply(fit_options, frame: pd.DataFrame, names: tuple[str, ...], group: str | None,
+                      values: np.ndarray | None = None) -> None:
+    """Missing-data helpers need rows with gaps in the model's items (an error otherwise: with every row complete
+    the likelihood of items and helpers factors into the items' own and the helpers' given the items, so the
+    helpers change no estimate, standard error or fit index, and an option that cannot apply is refused)."""
+    gap = rows_with_gaps(frame, names, values)
+    if gap.any():  # rows that answer nothing are left out whatever the helpers hold
+        gap &= ~(np.isnan(values).all(axis=1) if values is not None else frame[list(names)].isna().all(axis=1).to_numpy())
+    if group is not None and group in frame.columns:
+        gap &= frame[group].notna().to_numpy()
+    if not gap.any():
+        raise OptionError(f"the model's items have no missing answers in the rows analysed, so missing-data helpers "
+                          f"({Option.MISSING_HELPERS}) change nothing: with complete rows the estimates, standard "
+                          f"errors and fit are those without them; leave them out")
+
+
+def with_helpers(moments: SampleMoments, frame: pd.DataFrame, helpers: tuple[str, ...], source: str) -> SampleMoments:
+    """``moments`` (a full-information fit's rows) with the helpers' columns beside the items, for the same rows
+    (those answering some item: a row that answers no item is left out as without helpers), and the EM estimates of
+    the means and covariances of items and helpers together (the saturated model of the joint likelihood)."""
+    from cfa_tool.data.moments import moments_with_gaps, numeric_columns
+
+    values = numeric_columns(frame, helpers, source)
+    infinite = np.argwhere(np.isinf(values))
+    if len(infinite):
+        from cfa_tool.data.kept_rows import cell_words
+
+        row, col = infinite[0]
+        raise DataError(f"{source}: the missing-data helper '{printable(helpers[col])}' has an infinite value in "
+                        f"{cell_words(frame, helpers[col], row_numbers(frame)[row])}")
+    where = pd.Index(row_numbers(frame)).get_indexer(moments.row_numbers)
+    rows = np.hstack([moments.rows, values[where]])
+    where_said = source if moments.group is None else f"{source} (group {moments.group})"
+    weights = moments.design.weights if moments.design is not None else None
+    joint = moments_with_gaps(rows, moments.names + helpers, where_said, weights)
+    return replace(moments, names=joint.names, covariance=joint.covariance, means=joint.means, rows=rows)
 
 
 def rows_with_gaps(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None) -> np.ndarray:
@@ -1348,12 +1439,17 @@ KEYWORDS_BY_OTHER_NAMES = {"robust": "a robust test is asked for with test='robu
                                      "test='yuan-bentler')"}
 
 
-def make_options(options: dict, own: tuple[str, ...] = ()) -> FitOptions:
+def make_options(options: dict, own: tuple[str, ...] = (), helpers: bool = False) -> FitOptions:
     """The fit options of the keywords a public function passed on (``options``); an unknown keyword is an error
     naming it and the nearest keyword of that function (``own``, its keywords as declared beside it, such as
     :data:`FIT_KEYWORDS`) or of the fit options (difflib), or what asks for the same
-    (:data:`KEYWORDS_BY_OTHER_NAMES`)."""
+    (:data:`KEYWORDS_BY_OTHER_NAMES`).  ``helpers``: whether the function takes missing-data helpers (fit alone so
+    far; elsewhere they are refused, never ignored)."""
     from dataclasses import fields
+
+    if not helpers and options.get("missing_helpers"):
+        raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) are offered by fit only so far; leave "
+                          f"them out here")
 
     known = [f.name for f in fields(FitOptions)]
     unknown = next((k for k in options if k not in known), None)

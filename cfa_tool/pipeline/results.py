@@ -470,6 +470,8 @@ class FitResult(Presentable):
             "robust": clean(self.robust.to_dict()) if (self.robust is not None and self.converged) else None,
             "estimates": estimate_dicts(self.estimates),
         }
+        if self.method.helpers:  # the auxiliary variables of the full-information likelihood (estimation.auxiliary)
+            out["missing_helpers"] = list(self.method.helpers)
         if self.multigroup:
             out["group_column"] = self.group_column
             out["groups"] = [

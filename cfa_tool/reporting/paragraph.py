@@ -500,11 +500,25 @@ def _completely_at_random_sentence(result) -> str:
     from cfa_tool.assessment.missingness import TEST_NAME  # (fits without the test do not load it)
 
     figures = f"{CHI}({test.df}) = {test.chi_square:.2f}, {_p(test.p_value)}"
+    given = "the items analysed" + (" and the auxiliary variables" if result.method.helpers else "")
     if test.p_value < 0.05:
         return (f"{TEST_NAME} was significant ({figures}), so the answers are not missing completely at random; "
-                f"full-information ML rests on their being missing at random given the items analysed.")
+                f"full-information ML rests on their being missing at random given {given}.")
     return (f"{TEST_NAME} was not significant ({figures}), which does not show that they are; full-information ML "
-            f"needs only that the answers be missing at random given the items analysed.")
+            f"needs only that the answers be missing at random given {given}.")
+
+
+def helpers_sentence(helpers: tuple[str, ...]) -> str:
+    """The one sentence on the auxiliary variables of a full-information fit (the missing-data helpers)."""
+    many = len(helpers) > 1
+    linked = "each correlated with every item's residual and with each other" if many else \
+        "correlated with every item's residual"
+    return (f"The auxiliary variable{'s' if many else ''} {_names(helpers)} entered the likelihood "
+            f"in Graham's (2003) saturated-correlates form, {linked} and outside the model, so that answers need be "
+            f"missing at random only given the items and {'these variables' if many else 'this variable'}, while the "
+            f"model's degrees of freedom, chi-square and fit indices describe the model alone (the baseline model "
+            f"keeping the auxiliary variables' correlations free, Savalei & Bentler, 2009; the log-likelihood and "
+            f"information criteria include them, so they compare only fits with the same auxiliary variables).")
 
 
 def _pairs_by_group(result) -> str:
@@ -783,6 +797,8 @@ def methods_paragraph(result) -> str:
     missingness = _completely_at_random_sentence(result)
     if missingness:
         parts.append(missingness)
+    if result.method.helpers:
+        parts.append(helpers_sentence(result.method.helpers))
     inadmissible = not result.admissible
     if inadmissible:
         serious = [p for p in result.problems if p.kind.inadmissible]
