@@ -178,6 +178,7 @@ class Option(enum.Enum):
     DECIDE_BY = ("--decide-by", "decide_by")
     MAX_ITERATIONS = ("--max-iterations", "max_iterations")
     SCORE_METHODS = ("--method", "methods", None, True)
+    LEAST_ANSWERED = ("--least-answered", "least_answered")
 
     def __init__(self, flag: str, keyword: str, switch: str | None = None, listed: bool = False) -> None:
         self.flag = flag
