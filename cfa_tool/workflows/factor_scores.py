@@ -220,7 +220,7 @@ class ScaleSource(Enum):
 
     DECLARED = "the model's 'reversed' statement"
     CODED = "the codes of the model's 'answers' statement"
-    OBSERVED = "the lowest and highest answers of the rows the model was fitted to (no statement declares the scale)"
+    OBSERVED = "the lowest and highest answers of the rows the model was fitted to, which no statement declares"
 
 
 @dataclass(frozen=True)
