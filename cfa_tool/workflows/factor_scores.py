@@ -167,6 +167,23 @@ def _items_answered(model, rows: np.ndarray, at: np.ndarray, n: int) -> np.ndarr
     return out
 
 
+def _rows_as_read(loaded) -> pd.DataFrame:
+    """The rows of the data as read, before the row filters (--keep): the scores file has one line for each, and
+    :func:`_in_file_order` reads a gap in their index as a blank row of the file, which holds only while the rows a
+    filter left out are among them (pipeline.inputs keeps them as ``read_frame`` when filters are given).  Checked
+    here, so that a change there cannot write filtered rows as blank ones unnoticed."""
+    frame, read = loaded.frame, loaded.read_frame
+    if read is None:
+        if loaded.row_filters:
+            raise AssertionError("row filters were given but the rows as read before them were not kept (read_frame): "
+                                 "the rows the filters left out would be written as blank rows of the file")
+        return frame
+    if len(read) < len(frame) or not frame.index.isin(read.index).all():
+        raise AssertionError("the rows as read (read_frame) must hold every row the row filters kept, in the file's "
+                             "numbering: the scores are written in their places")
+    return read
+
+
 def _in_file_order(table: pd.DataFrame, data) -> pd.DataFrame:
     """The scores of a file's rows with an empty line for each blank row the reader skipped between them (hostile
     trial s11: a blank sheet row dropped from the scores file shifted every later score onto the row above when
@@ -520,7 +537,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                                      names_row=names_row)
     api.without_exploratory_blocks(spec, "scores", "its factors' scores would be those of the unrotated block")
     frame, source = loaded.frame, loaded.source
-    read_frame = loaded.read_frame if loaded.read_frame is not None else frame
+    read_frame = _rows_as_read(loaded)
     read_index = read_frame.index
     if not read_index.is_unique:
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index) so "
@@ -742,7 +759,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                                                      (id_column,) if isinstance(id_column, str) else (),
                                                      names_row=names_row)
     frame, source = loaded.frame, loaded.source
-    read_frame = loaded.read_frame if loaded.read_frame is not None else frame
+    read_frame = _rows_as_read(loaded)
     if not len(read_frame):
         raise DataError(f"{source} has no rows to score")
     if not read_frame.index.is_unique:
