@@ -44,6 +44,8 @@ def header_lines(result) -> list[str]:
             f"{first}one per factor" + ("" if not result.standard_errors else
                                         " with its posterior standard deviation" if ScoreMethod.EXPECTED_A_POSTERIORI
                                         in result.methods else " with its standard error")
+            + (" (factor scores only)" if result.standard_errors and any(m in ITEM_METHODS for m in result.methods)
+               else "")
             + f"{' and method' if len(result.methods) > 1 else ''}, then per factor the number of its items the row "
               f"answered"] + _design_line(fit)
 
@@ -240,7 +242,8 @@ def item_sum_notes(result) -> list[str]:
     several = len(result.item_sums) > 1
     prorated = "; ".join((f"group {g.group}: " if several else "") + (_listed_counts(g.factors, g.prorated) or "none")
                          for g in result.item_sums)
-    lines.append(f"Rows prorated from some of a factor's items: {prorated}. Rows left empty for answering too few "
+    lines.append(f"Rows whose item sums and means rest on some of a factor's items (prorated): {prorated}. Rows "
+                 f"left empty for answering too few "
                  f"of a factor's items: {_listed_counts(result.factors, few) or 'none'}.")
     for g in result.item_sums:
         where = f" in group {g.group}" if g.group is not None else ""

@@ -83,7 +83,7 @@ def test_sums_and_means_written_are_pandas_arithmetic(files, capsys, share):
     assert empty.get("item-sum", dict.fromkeys(FACTORS, 0)) == counts
     assert "_item_sum_se" not in ",".join(written.columns)  # standard errors are the factor scores' alone
     # the rule and the rows prorated are said in the report, with the omega beside the methods
-    assert "Item sum ω" in text and "Rows prorated from some of a factor's items" in text
+    assert "Item sum ω" in text and "rest on some of a factor's items (prorated)" in text
     assert f"at least {(share or 0.5):.0%}" in text and "short_wait on punctuality, on 1 to 5" in text
     assert ("common-practice default" in text) is (share is None)
 
