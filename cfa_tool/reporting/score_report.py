@@ -96,7 +96,9 @@ def quality_table(result, k: int) -> ReportTable:
             rows = [row + [unit(omega[name]) if name in omega else "—"] for row, name in zip(rows, q.factors)]
             note += (" Item sum ω: the reliability of the keyed sum of the answers' codes (and of the item mean, its "
                      "multiple) from the fitted thresholds, loadings and factor variance (Green & Yang 2009), as the "
-                     "fit gives it; — where a factor has no item sum.")
+                     "fit gives it: the agreement of the sum with its own true score, not with the factor, so it is "
+                     "not comparable with the posterior means' reliability beside it; — where a factor has no item "
+                     "sum.")
     else:
         cols = [("Factor", "l"), ("Determinacy", "r")] + [(METHOD_COLUMNS[m.method], "r") for m in q.methods]
         rows = []

@@ -291,10 +291,11 @@ class _ItemParts:
     summary: ItemSumSummary
 
 
-def _item_parts(model, spec, fit_data, omegas: dict, rule: ItemSumRule) -> _ItemParts:
+def _item_parts(model, spec, fit_data, omegas: dict, rule: ItemSumRule, categories=None) -> _ItemParts:
     """One group's :class:`_ItemParts` (``model``: its ScoringModel; ``fit_data``: the fit's DataSummary, whose
     answer ranges give the scale of a reverse-keyed item no statement gives one; ``omegas``: factor -> omega of
-    the keyed sum in the fit's reliability, assessment.reliability)."""
+    the keyed sum in the fit's reliability, assessment.reliability; ``categories``: ordinal items' answer values in
+    the fitted rows, item by item, which give that scale when the fit keeps no answer ranges)."""
     from cfa_tool.scoring.quality import sum_keys
 
     keys = sum_keys(model, _declared(spec))
@@ -306,6 +307,8 @@ def _item_parts(model, spec, fit_data, omegas: dict, rule: ItemSumRule) -> _Item
     summed = [j for j, why in enumerate(not_summed) if why is None]
     declared, codings = spec.reverse_keyed, spec.answer_codings()
     observed = dict(zip(fit_data.variables, fit_data.ranges)) if getattr(fit_data, "ranges", ()) else {}
+    if categories is not None:  # ordinal items: the lowest and highest category the fitted rows gave
+        observed = {**{x: (min(c), max(c)) for x, c in zip(model.items, categories) if len(c)}, **observed}
     p = model.p
     lowest, highest = np.full(p, np.nan), np.full(p, np.nan)
     reversals = []
@@ -630,7 +633,8 @@ def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group
     for model_g, label in zip(models, labels):
         sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(rows))
         parts = None if rule is None else _item_parts(model_g.base if ordinal else model_g, spec, fit.data,
-                                                       omegas.get(label, {}), rule)
+                                                       omegas.get(label, {}), rule,
+                                                       model_g.categories if ordinal else None)
         prorated: tuple = ()
         if len(sel):
             at = places[sel]

@@ -142,6 +142,16 @@ def test_ordinal_items_get_item_sums_beside_the_posterior_means(files, capsys):
     result = json.loads(js.read_text())
     fitted = {r["factor"]: r["observed_sum_omega"] for r in result["fit"]["reliability"]["factors"]}
     assert {f["factor"]: f["omega"] for f in result["item_sums"][0]["factors"]} == fitted  # Green & Yang 2009
+    # without the 'reversed' statement the loading's sign keys short_wait, reversed on the lowest and highest
+    # category the fitted rows gave (1 and 5 here), with a caution first
+    code, text, err = _run(["scores", MODEL, "--data", folder / "answers.csv", "--output", folder / "signs.csv",
+                            "--json", folder / "signs.json", "--ordinal", "all", "--method", "item-mean"], capsys)
+    assert code == 0, err
+    assert json.loads((folder / "signs.json").read_text())["item_sums"][0]["reversed"] == [
+        {"factor": "punctuality", "item": "short_wait", "lowest": 1.0, "highest": 5.0, "scale_from": "observed"}]
+    assert "reverse short_wait (1 to 5) on the lowest and highest answers" in text.split("Quality of the scores")[0]
+    np.testing.assert_allclose(pd.read_csv(folder / "signs.csv")["punctuality_item_mean"],
+                               _by_pandas(frame, 0.5)["punctuality"][1], rtol=1e-9, equal_nan=True)
     code, _, err = _run(["scores", folder / "keyed.cfa", "--data", folder / "answers.csv", "--output",
                          folder / "no.csv", "--ordinal", "all", "--method", "item-sum,regression"], capsys)
     assert code == 2 and "a scoring method cannot be chosen" in err
