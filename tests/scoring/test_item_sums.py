@@ -175,3 +175,29 @@ def test_least_answered_cannot_apply_without_item_sums():
 
     with pytest.raises(OptionError, match="cannot apply"):
         cfa_tool.scores(HS_MODEL, DATASETS / "holzinger_swineford_1939.csv", least_answered=0.75)
+
+
+def test_an_item_on_two_factors_counts_in_both_sums_and_the_report_says_so():
+    from tests.conftest import DATASETS
+
+    from cfa_tool.reporting.score_report import scores_report
+
+    data = pd.read_csv(DATASETS / "holzinger_swineford_1939.csv", index_col=0)
+    model = "factor visual: x1, x2, x3, x9\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
+    result = cfa_tool.scores(model, data, methods="item-sum")
+    np.testing.assert_allclose(result.table["visual_item_sum"], data[["x1", "x2", "x3", "x9"]].sum(axis=1))
+    np.testing.assert_allclose(result.table["speed_item_sum"], data[["x7", "x8", "x9"]].sum(axis=1))
+    assert result.item_sums[0].shared == (("x9", ("visual", "speed")),)
+    notes = " ".join(scores_report(result).notes)
+    assert "Items counted in the item sum of each factor they load on: x9 (visual, speed)" in notes
+
+
+def test_a_method_factor_has_no_item_sum():
+    from tests.assessment.test_method_factors import METHOD, TRAITS, _data
+
+    result = cfa_tool.scores(TRAITS + METHOD, _data(0.4), methods="item-mean")
+    assert result.table["m_item_mean"].isna().all() and result.table["a_item_mean"].notna().all()
+    assert result.item_sums[0].not_summed == (("m", Unscored.NOT_A_TRAIT),)
+    assert result.item_sums[0].factors == ("a", "b")
+    counts = {r: c for r, m, c in result.unscored}
+    assert counts[Unscored.NOT_A_TRAIT.value] == (0, 0, len(result.table))
