@@ -201,3 +201,22 @@ def test_a_method_factor_has_no_item_sum():
     assert result.item_sums[0].factors == ("a", "b")
     counts = {r: c for r, m, c in result.unscored}
     assert counts[Unscored.NOT_A_TRAIT.value] == (0, 0, len(result.table))
+
+
+def test_a_reversed_item_coded_by_an_answers_statement_is_reversed_on_its_codes():
+    from tests.commands.test_cli import DATA, MODEL
+
+    frame = pd.read_csv(DATA)
+    frame["short_wait"] = (6 - frame["short_wait"]).clip(lower=2)  # worded against the trait; nobody answered 1
+    words = {1: "Never", 2: "Rarely", 3: "Sometimes", 4: "Often", 5: "Always"}
+    frame["short_wait"] = frame["short_wait"].map(words)
+    model = (MODEL.read_text(encoding="utf-8")
+             + '\nanswers "Never" = 1, "Rarely" = 2, "Sometimes" = 3, "Often" = 4, "Always" = 5 for short_wait\n')
+    result = cfa_tool.scores(model, frame, methods="item-sum")
+    (reversal,) = result.item_sums[0].reversals
+    # the coding's scale, 1 to 5, not the answers given (2 to 5)
+    assert (reversal.item, reversal.lowest, reversal.highest, reversal.source.name) == ("short_wait", 1.0, 5.0, "CODED")
+    codes = frame["short_wait"].map({w: k for k, w in words.items()})
+    keyed = frame[["on_time", "accurate_info", "easy_transfer"]].assign(short_wait=1 + 5 - codes)
+    expected = (keyed.mean(axis=1) * 4).where(keyed.count(axis=1) >= 2)  # the demo file has a few gaps
+    np.testing.assert_allclose(result.table["punctuality_item_sum"], expected, equal_nan=True)
