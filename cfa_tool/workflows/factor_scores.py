@@ -324,7 +324,7 @@ def _item_parts(model, spec, fit_data, omegas: dict, rule: ItemSumRule, categori
                 (low, high), source = observed[item], ScaleSource.OBSERVED
             else:
                 raise OptionError(f"the item sum of '{printable(model.factors[j])}' reverses '{printable(item)}' (its "
-                                  f"loading is negative), and no answer scale is known to reverse it on; declare it "
+                                  f"loading has the sign opposite to the factor's other items), and no answer scale is known to reverse it on; declare it "
                                   f"with 'reversed {printable(item)} on LOWEST to HIGHEST' in the model file")
             lowest[i], highest[i] = float(low), float(high)
             reversals.append(Reversal(model.factors[j], item, float(low), float(high), source))
