@@ -220,3 +220,19 @@ def test_a_reversed_item_coded_by_an_answers_statement_is_reversed_on_its_codes(
     keyed = frame[["on_time", "accurate_info", "easy_transfer"]].assign(short_wait=1 + 5 - codes)
     expected = (keyed.mean(axis=1) * 4).where(keyed.count(axis=1) >= 2)  # the demo file has a few gaps
     np.testing.assert_allclose(result.table["punctuality_item_sum"], expected, equal_nan=True)
+
+
+def test_a_reversed_item_without_any_scale_is_refused_naming_the_statement_to_write():
+    from cfa_tool.language.parser import parse_model
+    from cfa_tool.scoring.model import ScoringModel
+    from cfa_tool.workflows.factor_scores import _item_parts
+
+    spec = parse_model("factor f: y1, y2, y3\n")
+    model = ScoringModel(("y1", "y2", "y3"), ("f",), np.array([[0.8], [-0.6], [0.7]]), np.eye(1), np.zeros(1),
+                         np.zeros(3), np.diag([0.36, 0.64, 0.51]))
+    no_ranges = SimpleNamespace(variables=("y1", "y2", "y3"), ranges=())  # e.g. a saved fit that kept none
+    with pytest.raises(OptionError, match=r"reverses 'y2'.*'reversed y2 on LOWEST to HIGHEST'"):
+        _item_parts(model, spec, no_ranges, {}, ItemSumRule())
+    parts = _item_parts(model, spec, SimpleNamespace(variables=("y1", "y2", "y3"), ranges=((1, 5), (2, 6), (1, 5))),
+                        {"f": 0.7}, ItemSumRule())
+    assert (parts.lowest[1], parts.highest[1]) == (2.0, 6.0) and parts.summary.omega == (0.7,)
