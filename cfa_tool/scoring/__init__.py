@@ -20,7 +20,8 @@ from cfa_tool.scoring.model import (OrdinalScoringModel, ScoringModel, one_group
 from cfa_tool.scoring.ordinal import EapScorer, PosteriorScores, eap_blocks, eap_scores
 from cfa_tool.scoring.quality import ScoreQuality, score_quality
 
-__all__ = ["DETERMINACY_CAUTION", "EapScorer", "ITEM_METHODS", "ItemSumRule", "ItemSums", "LINEAR_METHODS", "LinearScorer", "OrdinalScoringModel", "PosteriorScores",
-           "ScoreBlock", "ScoreMethod", "ScoreQuality", "ScoringModel", "Unscored", "eap_blocks", "eap_scores",
-           "one_group_ordinal_inputs", "ordinal_score_inputs", "row_blocks", "score_blocks", "score_groups",
-           "item_sums", "score_inputs", "score_quality", "score_rows", "scoring_model", "without_own_answers"]
+__all__ = ["DETERMINACY_CAUTION", "EapScorer", "ITEM_METHODS", "ItemSumRule", "ItemSums", "LINEAR_METHODS",
+           "LinearScorer", "OrdinalScoringModel", "PosteriorScores", "ScoreBlock", "ScoreMethod", "ScoreQuality",
+           "ScoringModel", "Unscored", "eap_blocks", "eap_scores", "item_sums", "one_group_ordinal_inputs",
+           "ordinal_score_inputs", "row_blocks", "score_blocks", "score_groups", "score_inputs", "score_quality",
+           "score_rows", "scoring_model", "without_own_answers"]
