@@ -179,6 +179,7 @@ class Option(enum.Enum):
     MAX_ITERATIONS = ("--max-iterations", "max_iterations")
     SCORE_METHODS = ("--method", "methods", None, True)
     MISSING_HELPERS = ("--missing-helpers", "missing_helpers", None, True)
+    LEAST_ANSWERED = ("--least-answered", "least_answered")
 
     def __init__(self, flag: str, keyword: str, switch: str | None = None, listed: bool = False) -> None:
         self.flag = flag

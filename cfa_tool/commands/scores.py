@@ -16,8 +16,14 @@ def add_parser(sub) -> None:
     p.add_argument("--data", required=True, metavar="FILE", help="data file (rows of answers)")
     p.add_argument("--output", required=True, metavar="PATH", help="CSV file to write the scores to ('-' for standard output)")
     p.add_argument("--method", metavar="LIST",
-                   help="comma-separated: regression (default), bartlett, correlation-preserving; ordinal items are "
-                        "always scored by their posterior mean with its standard deviation")
+                   help="comma-separated: regression (default), bartlett, correlation-preserving, item-sum, item-mean "
+                        "(the keyed sum or mean of each factor's items, reverse-keyed items reversed); ordinal items "
+                        "are always scored by their posterior mean with its standard deviation, item sums and means "
+                        "beside it when asked for")
+    p.add_argument("--least-answered", type=float, metavar="SHARE",
+                   help="item sums and means: the least share of a factor's items a row must answer, its sum then "
+                        "prorated from the answered ones (default 0.5, common practice); a row that answered fewer "
+                        "gets empty cells")
     p.add_argument("--standard-errors", action="store_true",
                    help="also write each score's standard error (for regression scores the posterior standard deviation); "
                         "ordinal items always have theirs written, so the option is not given with them")
@@ -72,13 +78,14 @@ def run(args: argparse.Namespace) -> int:
                                   f"the earlier fit (its groups too), so it cannot apply; remove it")
         result = score_with_saved_fit(Path(args.model), args.from_fit, args.data, methods=_methods(args.method),
                                       standard_errors=args.standard_errors, id_column=args.id, sheet=args.sheet, names_row=args.names_row,
-                                      missing_codes=args.missing_codes, keep=args.keep)
+                                      missing_codes=args.missing_codes, keep=args.keep,
+                                      least_answered=args.least_answered)
     else:
         result = scores(Path(args.model), args.data, methods=_methods(args.method), standard_errors=args.standard_errors,
                         id_column=args.id, group=args.group, reference_group=args.reference_group, sheet=args.sheet, names_row=args.names_row,
                         missing_codes=args.missing_codes, keep=args.keep, ordinal=O.ordinal_arg(args.ordinal),
                         ordinal_estimator=args.ordinal_estimator, missing=args.missing,
-                        max_iterations=args.max_iterations, **O.design_args(args))
+                        max_iterations=args.max_iterations, least_answered=args.least_answered, **O.design_args(args))
     rows = ("--output", result.csv(), f"Scores of {result.rows} rows written to {args.output}")
     emit_report(args, result, [args.model, args.data, args.from_fit], first=[rows])
     if result.low_determinacy:

@@ -10,7 +10,8 @@ from cfa_tool.options import Option
 from cfa_tool.reporting.numbers import num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
 from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT
-from cfa_tool.scoring.methods import DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, LINEAR_METHODS, ScoreMethod
+from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, ITEM_METHODS, LINEAR_METHODS,
+                                      ScoreMethod, Unscored)
 
 SCORES_CAUTION = (
     "Factor scores are estimates, not the factors themselves: with the same data, other equally valid scores exist. "
@@ -19,7 +20,8 @@ SCORES_CAUTION = (
 
 METHOD_LABELS = {ScoreMethod.REGRESSION: "regression", ScoreMethod.BARTLETT: "Bartlett",
                  ScoreMethod.CORRELATION_PRESERVING: "correlation-preserving",
-                 ScoreMethod.EXPECTED_A_POSTERIORI: "posterior mean"}
+                 ScoreMethod.EXPECTED_A_POSTERIORI: "posterior mean", ScoreMethod.ITEM_SUM: "item sum",
+                 ScoreMethod.ITEM_MEAN: "item mean"}
 
 
 #: short column headers (the notes name the methods in full)
@@ -42,6 +44,8 @@ def header_lines(result) -> list[str]:
             f"{first}one per factor" + ("" if not result.standard_errors else
                                         " with its posterior standard deviation" if ScoreMethod.EXPECTED_A_POSTERIORI
                                         in result.methods else " with its standard error")
+            + (" (factor scores only)" if result.standard_errors and any(m in ITEM_METHODS for m in result.methods)
+               else "")
             + f"{' and method' if len(result.methods) > 1 else ''}, then per factor the number of its items the row "
               f"answered"] + _design_line(fit)
 
@@ -79,18 +83,32 @@ def _one_item_sentence(fit) -> str:
 def quality_table(result, k: int) -> ReportTable:
     q = result.quality[k]
     ordinal = not hasattr(q, "methods")
+    sums = _item_sums_of(result, q)
     if ordinal:
         rows = [[name, unit(rho) + (" (below .80)" if low else ""), unit(rel)]
                 for name, rho, rel, low in zip(q.factors, q.determinacy, q.reliability, q.low_determinacy)]
         cols = [("Factor", "l"), ("Determinacy", "r"), ("Reliability", "r")]
         note = ("Posterior-mean scores in these data: reliability Var(score) / (Var(score) + mean posterior variance), the "
                 "squared correlation of the score with its factor (law of total variance); determinacy its square root.")
+        if sums is not None:
+            omega = dict(zip(sums.factors, sums.omega))
+            cols.append(("Item sum ω", "r"))
+            rows = [row + [unit(omega[name]) if name in omega else "—"] for row, name in zip(rows, q.factors)]
+            note += (" Item sum ω: the reliability of the keyed sum of the answers' codes (and of the item mean, its "
+                     "multiple) from the fitted thresholds, loadings and factor variance (Green & Yang 2009), as the "
+                     "fit gives it: the agreement of the sum with its own true score, not with the factor, so it is "
+                     "not comparable with the posterior means' reliability beside it; — where a factor has no item "
+                     "sum.")
     else:
         cols = [("Factor", "l"), ("Determinacy", "r")] + [(METHOD_COLUMNS[m.method], "r") for m in q.methods]
         rows = []
         for f, name in enumerate(q.factors):
             rows.append([name, unit(q.determinacy[f]) + (" (below .80)" if q.low_determinacy[f] else "")]
                         + [unit(m.reliability[f]) for m in q.methods])
+        if sums is not None:
+            omega = dict(zip(sums.factors, sums.omega))
+            cols.append(("Item sum ω", "r"))
+            rows = [row + [unit(omega[name]) if name in omega else "—"] for row, name in zip(rows, q.factors)]
         note = ("Determinacy: the correlation of the regression scores with their factor (Grice 2001). Then the "
                 "reliability of each method's scores (Corr.-preserving: correlation-preserving scores): the squared correlation of "
                 "the score with its factor (Beauducel 2011). Values "
@@ -99,18 +117,24 @@ def quality_table(result, k: int) -> ReportTable:
                 + (f"; shown for comparison, not written (ask for them with {Option.SCORE_METHODS}): "
                    + word_list(unwritten) if (unwritten := [METHOD_LABELS[m] for m in LINEAR_METHODS
                                                              if m not in result.methods]) else "") + "."
+                + (" Item sum ω: the reliability of each factor's keyed item sum (and of the item mean, its multiple), "
+                   "omega (McDonald 1999) as the fit gives it, the share of the sum's variance due to the factor; for "
+                   "items that load on one factor only it is the squared correlation of the sum with the factor, as "
+                   "the methods' reliabilities are; — where a factor has no item sum." if sums is not None else "")
                 + _one_item_sentence(result.fit))
     title = "Quality of the scores" + _where(q) + ("" if ordinal else ": determinacy, and reliability by method")
     return _table(f"score_quality_{k}", title, cols, rows, note,
                   flagged=tuple(i for i, low in enumerate(q.low_determinacy) if low))
 
 
-def _precision_of(result, q) -> tuple[ScoreMethod, tuple]:
-    """(the method, its scoring.quality.Precision per factor) of one group's scores: the first method written (the
-    posterior means for ordinal items, their one method)."""
+def _precision_of(result, q) -> tuple[ScoreMethod | None, tuple]:
+    """(the method, its scoring.quality.Precision per factor) of one group's scores: the first factor-score method
+    written (the posterior means for ordinal items, their one method); (None, ()) for item sums and means alone,
+    whose reliability the quality table gives."""
     from cfa_tool.scoring.quality import precision_of
 
-    return result.methods[0], precision_of(q, result.methods[0])
+    method = next((m for m in result.methods if m not in ITEM_METHODS), None)
+    return method, precision_of(q, method) if method is not None else ()
 
 
 def precision_table(result, k: int) -> ReportTable | None:
@@ -156,6 +180,9 @@ def precision_cautions(result) -> list[str]:
     lines = []
     for q in result.quality:
         method, precise = _precision_of(result, q)
+        lines += _item_sum_cautions(result, q)
+        if method is None:
+            continue
         words = f"{METHOD_LABELS[method]} scores"
         if hasattr(q, "methods"):
             found = [(p.factor, p.reliability, p.band_in_sd) for p in precise]
@@ -168,6 +195,70 @@ def precision_cautions(result) -> list[str]:
             lines.append(f"The reliability of the {words}{_where(q)} is below the {unit(INDIVIDUAL_DECISIONS, 2)} that "
                          f"decisions about individuals usually need (Nunnally & Bernstein 1994; common practice): "
                          f"{', '.join(low)}.")
+    return lines
+
+
+def _item_sums_of(result, q):
+    """The item sums' summary (workflows.factor_scores.ItemSumSummary) of the group whose quality is ``q``; None
+    when no item sum or mean is written."""
+    return next((g for g in result.item_sums if g.group == q.group), None)
+
+
+def _item_sum_cautions(result, q) -> list[str]:
+    """The caution of the precision table's reliabilities, for the item sums' omega below what decisions about
+    individuals usually need."""
+    sums = _item_sums_of(result, q)
+    if sums is None:
+        return []
+    low = [f"{f} {unit(w, 2)}" for f, w in zip(sums.factors, sums.omega) if w == w and w < INDIVIDUAL_DECISIONS]
+    if not low:
+        return []
+    return [f"The reliability (omega) of the item sums and means{_where(q)} is below the "
+            f"{unit(INDIVIDUAL_DECISIONS, 2)} that decisions about individuals usually need (Nunnally & Bernstein 1994; "
+            f"common practice): {', '.join(low)}."]
+
+
+def _listed_counts(factors, counts) -> str:
+    return ", ".join(f"{f} {n}" for f, n in zip(factors, counts) if n)
+
+
+def item_sum_notes(result) -> list[str]:
+    """What the item sums and means are and how they were made, in every view: the missing-answers rule and how many
+    rows were prorated or left empty, the items reversed and on which scale, items counted on several factors, and
+    the factors without a sum."""
+    if not result.item_sums:
+        return []
+    rule = result.item_sums[0].rule
+    share = f"{rule.least_share:.0%}".replace(".0%", "%")
+    written = word_list(METHOD_LABELS[m] for m in ITEM_METHODS if m in result.methods)
+    lines = [f"Item sums and means ({written}): each factor's own items, each reverse-keyed item reversed as lowest + "
+             f"highest answer - x, by the keys of the fit's reliability; a row that answered at least {share} of a "
+             f"factor's items gets the mean of its answered keyed items (the item mean), and that mean times the "
+             f"number of items (the item sum, prorated); a row that answered fewer gets empty cells ("
+             + ("the common-practice default, no single source; " if rule.default else "")
+             + f"set by {Option.LEAST_ANSWERED}). They are not factor scores: every item weighs the same, whatever "
+               f"its loading."]
+    one = next(m for m in ITEM_METHODS if m in result.methods)  # the sum and the mean leave the same cells empty
+    few = next((c for r, m, c in result.unscored if r == Unscored.TOO_FEW_ITEMS_ANSWERED.value and m == one.value),
+               (0,) * len(result.factors))
+    several = len(result.item_sums) > 1
+    prorated = "; ".join((f"group {g.group}: " if several else "") + (_listed_counts(g.factors, g.prorated) or "none")
+                         for g in result.item_sums)
+    lines.append(f"Rows whose item sums and means rest on some of a factor's items (prorated): {prorated}. Rows "
+                 f"left empty for answering too few "
+                 f"of a factor's items: {_listed_counts(result.factors, few) or 'none'}.")
+    for g in result.item_sums:
+        where = f" in group {g.group}" if g.group is not None else ""
+        if g.reversals:
+            turned = "; ".join(f"{r.item} on {r.factor}, on {r.lowest:g} to {r.highest:g} ({r.source.value})"
+                               for r in g.reversals)
+            lines.append(f"Reversed in the item sums{where}: {turned}.")
+        if g.shared:
+            lines.append(f"Items counted in the item sum of each factor they load on{where}: "
+                         + "; ".join(f"{x} ({', '.join(fs)})" for x, fs in g.shared) + ".")
+        if g.not_summed:
+            lines.append(f"No item sum or mean{where} for " + "; ".join(f"{f} ({why.value})" for f, why in g.not_summed)
+                         + ".")
     return lines
 
 
@@ -275,7 +366,22 @@ def warnings(result) -> list[str]:
         # the fit's advice named its own options; scoring other data takes none of them
         option = f" ({Remedy.COMPLETE_ROWS.option})"
         fitted = [ABOUT_THE_FIT + w.replace(option, "") for w in fitted]
-    return list(result.warnings) + fitted
+    return list(result.warnings) + _guessed_scales(result) + fitted
+
+
+def _guessed_scales(result) -> list[str]:
+    """The caution for item sums that reverse an item on the lowest and highest answers the fitted rows gave, which
+    no statement declares: a scale whose extreme answer nobody gave would shift every sum with that item."""
+    from cfa_tool.workflows.factor_scores import ScaleSource
+
+    guessed = {r.item: r for g in result.item_sums for r in g.reversals if r.source is ScaleSource.OBSERVED}
+    if not guessed:
+        return []
+    listed = ", ".join(f"{x} ({r.lowest:g} to {r.highest:g})" for x, r in guessed.items())
+    return [f"The item sums and means reverse {listed} on the lowest and highest answers of the rows the model was "
+            f"fitted to, as no statement declares the answer scale; if the scale runs wider than these answers, every "
+            f"sum with {'this item' if len(guessed) == 1 else 'these items'} is shifted: declare the scale with "
+            f"'reversed ITEM on LOWEST to HIGHEST' in the model file."]
 
 
 def scores_report(result):
@@ -285,5 +391,5 @@ def scores_report(result):
 
     return Report(ResultKind.SCORES, f"Factor scores: {result.fit.model_name}", T.problem_notice(result.fit),
                   tuple(header_lines(result)) + tuple(caution_lines(result)), tuple(score_tables(result)),
-                  tuple(result.notes), (SCORES_CAUTION, *precision_cautions(result), HIGH_STAKES_NOTE),
+                  tuple(result.notes) + tuple(item_sum_notes(result)), (SCORES_CAUTION, *precision_cautions(result), HIGH_STAKES_NOTE),
                   problem_table=T.problem_table(result.fit), warnings=tuple(warnings(result)))

@@ -8,17 +8,20 @@ The modules are pure functions on one group's fitted matrices:
   correlation-preserving (Anderson & Rubin 1956; ten Berge et al. 1999) weights per answer pattern;
 * :mod:`~cfa_tool.scoring.linear`: rows scored block by block from their answered items;
 * :mod:`~cfa_tool.scoring.ordinal`: expected a posteriori scores of ordinal items;
-* :mod:`~cfa_tool.scoring.quality`: determinacy, reliability, score correlations, keyed sum scores and omega.
+* :mod:`~cfa_tool.scoring.quality`: determinacy, reliability, score correlations, keyed sum scores and omega;
+* :mod:`~cfa_tool.scoring.item_sums`: each person's keyed item sum and item mean, prorated from the answered items.
 """
 
+from cfa_tool.scoring.item_sums import ItemSumRule, ItemSums, item_sums
 from cfa_tool.scoring.linear import LinearScorer, ScoreBlock, row_blocks, score_blocks, score_groups, score_rows
-from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod, Unscored
+from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod, Unscored
 from cfa_tool.scoring.model import (OrdinalScoringModel, ScoringModel, one_group_ordinal_inputs, ordinal_score_inputs,
                                     score_inputs, scoring_model, without_own_answers)
 from cfa_tool.scoring.ordinal import EapScorer, PosteriorScores, eap_blocks, eap_scores
-from cfa_tool.scoring.quality import ScoreQuality, score_quality, sum_scores
+from cfa_tool.scoring.quality import ScoreQuality, score_quality
 
-__all__ = ["DETERMINACY_CAUTION", "EapScorer", "LINEAR_METHODS", "LinearScorer", "OrdinalScoringModel", "PosteriorScores",
-           "ScoreBlock", "ScoreMethod", "ScoreQuality", "ScoringModel", "Unscored", "eap_blocks", "eap_scores",
-           "one_group_ordinal_inputs", "ordinal_score_inputs", "row_blocks", "score_blocks", "score_groups",
-           "score_inputs", "score_quality", "score_rows", "scoring_model", "sum_scores", "without_own_answers"]
+__all__ = ["DETERMINACY_CAUTION", "EapScorer", "ITEM_METHODS", "ItemSumRule", "ItemSums", "LINEAR_METHODS",
+           "LinearScorer", "OrdinalScoringModel", "PosteriorScores", "ScoreBlock", "ScoreMethod", "ScoreQuality",
+           "ScoringModel", "Unscored", "eap_blocks", "eap_scores", "item_sums", "one_group_ordinal_inputs",
+           "ordinal_score_inputs", "row_blocks", "score_blocks", "score_groups", "score_inputs", "score_quality",
+           "score_rows", "scoring_model", "without_own_answers"]

@@ -18,9 +18,16 @@ class ScoreMethod(Enum):
     #: ordinal items: the posterior mean over the latent-response model (expected a posteriori;
     #: Bock & Aitkin 1981)
     EXPECTED_A_POSTERIORI = "expected-a-posteriori"
+    #: the plain scale score of scale manuals: the sum of a factor's own items, reverse-keyed items reversed
+    #: (lowest + highest answer - x), prorated from the answered items (scoring.item_sums)
+    ITEM_SUM = "item-sum"
+    #: the same keyed answers averaged: on the answer scale, so factors with different numbers of items compare
+    ITEM_MEAN = "item-mean"
 
 
 LINEAR_METHODS = (ScoreMethod.REGRESSION, ScoreMethod.BARTLETT, ScoreMethod.CORRELATION_PRESERVING)
+#: scale scores computed from the answers alone, keyed and checked by the fitted model (not factor scores)
+ITEM_METHODS = (ScoreMethod.ITEM_SUM, ScoreMethod.ITEM_MEAN)
 
 
 class Unscored(Enum):
@@ -32,6 +39,12 @@ class Unscored(Enum):
     HIGHER_ORDER = "the method does not apply to a factor measured only through other factors"
     #: the row's answers do not reach every factor that the method scores jointly
     TOO_FEW_ANSWERS = "the answered items do not measure every factor the method scores jointly"
+    #: item sums and means: the row answered fewer of the factor's items than the least share the rule asks for
+    TOO_FEW_ITEMS_ANSWERED = "fewer of the factor's items answered than the item sum's least share"
+    #: item sums and means exist only for a factor measured by items alone (none through factors below it)
+    NOT_ITEMS_ALONE = "an item sum or mean is only for a factor measured by its own items alone"
+    #: item sums and means: a method factor describes a way of answering (wording, acquiescence), not a trait
+    NOT_A_TRAIT = "a method factor describes a way of answering, not a trait, and has no item sum or mean"
 
 
 #: determinacy below this is a caution against using the scores for decisions about individuals
@@ -40,3 +53,7 @@ DETERMINACY_CAUTION = 0.80
 #: reliability below this is usually too low for decisions about individuals (Nunnally & Bernstein 1994 ask
 #: for .90 at least there; common practice, recalled from memory)
 INDIVIDUAL_DECISIONS = 0.90
+#: item sums and means: the least share of a factor's items a row must answer to be prorated (the mean of its answered
+#: keyed items, times the number of items for a sum); common practice ('the half rule'), no single source, recalled
+#: from memory
+LEAST_SHARE_ANSWERED = 0.5

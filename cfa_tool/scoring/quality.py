@@ -27,7 +27,7 @@ Sum scores: the unit-weighted sum of the items that measure a factor (directly o
 factors below it), each reverse-keyed item (negative total loading) reversed (its sign flipped), with
 omega of the sum (McDonald 1999): omega = (k'G_f)^2 Phi_ff / k'Sigma k for keys k and total loadings
 G = L A; with every key positive this is the omega of :mod:`cfa_tool.assessment.reliability`.
-A row that misses one of the sum's items gets no sum (a sum over fewer items is on another scale).
+Each person's item sum and mean, prorated from the answered items: :mod:`cfa_tool.scoring.item_sums`.
 """
 
 from __future__ import annotations
@@ -202,16 +202,6 @@ def sum_keys(model: ScoringModel, declared: Collection[str] | None = None) -> np
     statement (``declared``: the items it names), the signs of the loadings otherwise."""
     G, L = model.total_loadings, model.loadings
     return item_keys(np.where(G != 0, G, L), model.reach, model.items, declared)[0]
-
-
-def sum_scores(model: ScoringModel, rows: np.ndarray, declared: Collection[str] | None = None) -> np.ndarray:
-    """(n, m) keyed unit-weighted sums (keys: :func:`sum_keys`); NaN where a row misses one of the factor's items."""
-    keys = sum_keys(model, declared)
-    rows = np.asarray(rows, dtype=float)
-    filled = np.where(np.isnan(rows), 0.0, rows)
-    sums = filled @ keys
-    incomplete = np.isnan(rows).astype(float) @ (keys != 0).astype(float) > 0
-    return np.where(incomplete, np.nan, sums)
 
 
 def sum_quality(model: ScoringModel, declared: Collection[str] | None = None) -> tuple[SumScore, ...]:

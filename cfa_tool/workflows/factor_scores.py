@@ -27,7 +27,8 @@ from cfa_tool.numerics.plain import csv_cell
 from cfa_tool.options import Option, group_column, own_keywords
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
-from cfa_tool.scoring.methods import DETERMINACY_CAUTION, LINEAR_METHODS, ScoreMethod
+from cfa_tool.scoring.item_sums import ItemSumRule
+from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_METHODS, ScoreMethod, Unscored
 from cfa_tool.scoring.quality import Precision, ScoreQuality, ordinal_sum_quality
 
 
@@ -49,13 +50,13 @@ ABOUT_THE_FIT = "About the fit (not the scored data): "
 #: the header of the id column when the file's row names name the rows
 ROW_NAME_HEADER = "row_name"
 
-#: the words --method takes, one per linear method (ordinal items have one method: the posterior mean)
-METHOD_WORDS = {m.value: m for m in LINEAR_METHODS}
+#: the words --method takes, one per linear method and item score (ordinal items have one method: the posterior mean)
+METHOD_WORDS = {m.value: m for m in LINEAR_METHODS + ITEM_METHODS}
 
 
 def method_option(methods) -> tuple[ScoreMethod, ...]:
-    """Linear methods from words ('regression', 'bartlett', 'correlation-preserving'), a list of them, or
-    ScoreMethod values; each at most once."""
+    """Linear methods and item scores from words ('regression', 'bartlett', 'correlation-preserving', 'item-sum',
+    'item-mean'), a list of them, or ScoreMethod values; each at most once."""
     if methods is None:
         return (ScoreMethod.REGRESSION,)
     if isinstance(methods, (str, ScoreMethod)):
@@ -69,13 +70,34 @@ def method_option(methods) -> tuple[ScoreMethod, ...]:
             if m not in METHOD_WORDS:
                 raise OptionError(f"unknown scoring method '{printable(m)}': choose from {', '.join(METHOD_WORDS)}")
             m = METHOD_WORDS[m]
-        if m not in LINEAR_METHODS:
+        if m not in LINEAR_METHODS + ITEM_METHODS:
             raise OptionError(f"'{m.value}' is not a method to choose: ordinal items are always scored by their "
                               f"posterior mean")
         if m in out:
             raise OptionError(f"the scoring method '{m.value}' is given twice")
         out.append(m)
     return tuple(out)
+
+
+def factor_methods(chosen) -> tuple[ScoreMethod, ...]:
+    """The methods among ``chosen`` that score the factors (not item sums or means)."""
+    return tuple(m for m in chosen if m not in ITEM_METHODS)
+
+
+def item_rule(chosen, least_answered) -> ItemSumRule | None:
+    """The missing-answers rule of item sums and means (None when neither is written); ``least_answered`` (None: the
+    common-practice default) cannot apply without them."""
+    from cfa_tool.options import real_number
+
+    if not any(m in ITEM_METHODS for m in chosen):
+        if least_answered is not None:
+            raise OptionError(f"{Option.LEAST_ANSWERED} is the rule of item sums and means, which are not asked for "
+                              f"(methods item-sum or item-mean), so it cannot apply; remove it")
+        return None
+    if least_answered is None:
+        return ItemSumRule()
+    return ItemSumRule(real_number(f"the least share answered ({Option.LEAST_ANSWERED})", least_answered, 0.0, 1.0,
+                                   open_low=True))
 
 
 def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, errors: dict,
@@ -90,12 +112,13 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
         columns[id_name] = ids.tolist()
     for meth in chosen:
         for f, name in enumerate(factors):
-            written = (column_name(name, meth),) + ((column_name(name, meth, "se"),) if with_errors else ())
+            errors_here = with_errors and meth not in ITEM_METHODS  # a sum has no standard error of its own
+            written = (column_name(name, meth),) + ((column_name(name, meth, "se"),) if errors_here else ())
             if id_name in written:
                 raise OptionError(f"the id column '{printable(id_name)}' has the name of a column of scores the output "
                                   f"holds; rename that column in the data, or name the rows by another column")
             columns[column_name(name, meth)] = values[meth][:, f]
-            if with_errors:
+            if errors_here:
                 columns[column_name(name, meth, "se")] = errors[meth][:, f]
     for f, name in enumerate(factors):
         if id_name == answered_column(name):
@@ -144,6 +167,23 @@ def _items_answered(model, rows: np.ndarray, at: np.ndarray, n: int) -> np.ndarr
     return out
 
 
+def _rows_as_read(loaded) -> pd.DataFrame:
+    """The rows of the data as read, before the row filters (--keep): the scores file has one line for each, and
+    :func:`_in_file_order` reads a gap in their index as a blank row of the file, which holds only while the rows a
+    filter left out are among them (pipeline.inputs keeps them as ``read_frame`` when filters are given).  Checked
+    here, so that a change there cannot write filtered rows as blank ones unnoticed."""
+    frame, read = loaded.frame, loaded.read_frame
+    if read is None:
+        if loaded.row_filters:
+            raise AssertionError("row filters were given but the rows as read before them were not kept (read_frame): "
+                                 "the rows the filters left out would be written as blank rows of the file")
+        return frame
+    if len(read) < len(frame) or not frame.index.isin(read.index).all():
+        raise AssertionError("the rows as read (read_frame) must hold every row the row filters kept, in the file's "
+                             "numbering: the scores are written in their places")
+    return read
+
+
 def _in_file_order(table: pd.DataFrame, data) -> pd.DataFrame:
     """The scores of a file's rows with an empty line for each blank row the reader skipped between them (hostile
     trial s11: a blank sheet row dropped from the scores file shifted every later score onto the row above when
@@ -190,6 +230,165 @@ def column_name(factor: str, method: ScoreMethod, what: str = "") -> str:
     if what == "se":
         word = "posterior_sd" if method is ScoreMethod.EXPECTED_A_POSTERIORI else word + "_se"
     return f"{factor}_{word}"
+
+
+class ScaleSource(Enum):
+    """Where the answer scale a reverse-keyed item is reversed on (lowest + highest - x) comes from."""
+
+    DECLARED = "the model's 'reversed' statement"
+    CODED = "the codes of the model's 'answers' statement"
+    OBSERVED = "the lowest and highest answers of the rows the model was fitted to, which no statement declares"
+
+
+@dataclass(frozen=True)
+class Reversal:
+    """A reverse-keyed item of a factor's item sum, reversed as lowest + highest - x."""
+
+    factor: str
+    item: str
+    lowest: float
+    highest: float
+    source: ScaleSource
+
+    def to_dict(self) -> dict:
+        return {"factor": self.factor, "item": self.item, "lowest": self.lowest, "highest": self.highest,
+                "scale_from": self.source.name.lower()}
+
+
+@dataclass(frozen=True, eq=False)
+class ItemSumSummary:
+    """One group's item sums and means: how they were keyed and counted, and their reliability under the fit."""
+
+    group: str | None
+    rule: ItemSumRule
+    factors: tuple[str, ...]  # the factors summed
+    items: tuple[tuple[str, ...], ...]  # each summed factor's items
+    omega: tuple[float, ...]  # of each summed factor's keyed sum, from the fit's reliability (McDonald 1999)
+    reversals: tuple[Reversal, ...]
+    not_summed: tuple[tuple[str, Unscored], ...]  # (factor, why it has no item sum)
+    shared: tuple[tuple[str, tuple[str, ...]], ...]  # (item, the summed factors it counts on) for items on several
+    prorated: tuple[int, ...] = ()  # rows of this group prorated, per summed factor
+
+    def to_dict(self) -> dict:
+        return clean({"group": self.group, "least_share_answered": self.rule.least_share,
+                      "least_share_is_default": self.rule.default,
+                      "factors": [{"factor": f, "items": list(items), "omega": w, "rows_prorated": n}
+                                  for f, items, w, n in zip(self.factors, self.items, self.omega, self.prorated)],
+                      "reversed": [r.to_dict() for r in self.reversals],
+                      "not_summed": [{"factor": f, "reason": why.value} for f, why in self.not_summed],
+                      "items_on_several_factors": [{"item": x, "factors": list(fs)} for x, fs in self.shared]})
+
+
+@dataclass(frozen=True, eq=False)
+class _ItemParts:
+    """What one group's item sums need: keys (p, m), each item's answer scale, the reason each factor has no sum
+    (None: summed), and the summary the report shows."""
+
+    keys: np.ndarray
+    lowest: np.ndarray
+    highest: np.ndarray
+    not_summed: list
+    summary: ItemSumSummary
+
+
+def _item_parts(model, spec, fit_data, omegas: dict, rule: ItemSumRule, categories=None) -> _ItemParts:
+    """One group's :class:`_ItemParts` (``model``: its ScoringModel; ``fit_data``: the fit's DataSummary, whose
+    answer ranges give the scale of a reverse-keyed item no statement gives one; ``omegas``: factor -> omega of
+    the keyed sum in the fit's reliability, assessment.reliability; ``categories``: ordinal items' answer values in
+    the fitted rows, item by item, which give that scale when the fit keeps no answer ranges)."""
+    from cfa_tool.scoring.quality import sum_keys
+
+    keys = sum_keys(model, _declared(spec))
+    direct = model.loadings != 0
+    alone = model.measured & (model.reach == direct).all(axis=0)
+    method_factors = spec.method_factors
+    not_summed = [Unscored.NOT_A_TRAIT if f in method_factors else None if alone[j] else Unscored.NOT_ITEMS_ALONE
+                  for j, f in enumerate(model.factors)]
+    summed = [j for j, why in enumerate(not_summed) if why is None]
+    declared, codings = spec.reverse_keyed, spec.answer_codings()
+    observed = dict(zip(fit_data.variables, fit_data.ranges)) if getattr(fit_data, "ranges", ()) else {}
+    if categories is not None:  # ordinal items: the lowest and highest category the fitted rows gave
+        observed = {**{x: (min(c), max(c)) for x, c in zip(model.items, categories) if len(c)}, **observed}
+    p = model.p
+    lowest, highest = np.full(p, np.nan), np.full(p, np.nan)
+    reversals = []
+    for j in summed:
+        for i in np.flatnonzero(keys[:, j] < 0):
+            item = model.items[i]
+            if item in declared:
+                (low, high), source = declared[item], ScaleSource.DECLARED
+            elif item in codings:
+                codes = [a.code for a in codings[item].answers]
+                (low, high), source = (min(codes), max(codes)), ScaleSource.CODED
+            elif item in observed:
+                (low, high), source = observed[item], ScaleSource.OBSERVED
+            else:
+                raise OptionError(f"the item sum of '{printable(model.factors[j])}' reverses '{printable(item)}' (its "
+                                  f"loading has the sign opposite to the factor's other items), and no answer scale is known to reverse it on; declare it "
+                                  f"with 'reversed {printable(item)} on LOWEST to HIGHEST' in the model file")
+            lowest[i], highest[i] = float(low), float(high)
+            reversals.append(Reversal(model.factors[j], item, float(low), float(high), source))
+    counted = (keys != 0)[:, summed]
+    shared = tuple((model.items[i], tuple(model.factors[summed[k]] for k in np.flatnonzero(counted[i])))
+                   for i in np.flatnonzero(counted.sum(axis=1) > 1))
+    summary = ItemSumSummary(model.group, rule, tuple(model.factors[j] for j in summed),
+                             tuple(tuple(model.items[i] for i in np.flatnonzero(keys[:, j])) for j in summed),
+                             tuple(float(omegas.get(model.factors[j], float("nan"))) for j in summed),
+                             tuple(reversals), tuple((f, why) for f, why in zip(model.factors, not_summed)
+                                                     if why is not None), shared)
+    return _ItemParts(keys, lowest, highest, not_summed, summary)
+
+
+def _fitted_omegas(fit, ordinal: bool) -> dict:
+    """Each group's label -> {factor: omega of the keyed sum} in the fit's reliability (assessment.reliability, as
+    the fit's report gives it), from a fit result or from the reliability a saved fit's JSON holds; for ordinal items
+    the omega of the sum of the answers' codes (Green & Yang 2009) the fit gives beside its latent-response omega."""
+    field = "observed_sum_omega" if ordinal else "omega"
+    if isinstance(fit, SavedFit):
+        payload = fit.payload
+        if fit.group_column is not None:
+            parts = {g.get("name"): g.get("reliability") or {} for g in payload.get("groups", ())}
+        else:
+            parts = {None: payload.get("reliability") or {}}
+        found = {label: {r["factor"]: float("nan") if r.get(field) is None else float(r[field])
+                         for r in part.get("factors", ()) if isinstance(r, dict) and "factor" in r}
+                 for label, part in parts.items()}
+    else:
+        found = {g.label: {r.factor: float("nan") if getattr(r, field) is None else float(getattr(r, field))
+                           for r in g.reliability} for g in fit.groups}
+    if len(found) == 1:  # one group: whatever its label, the one set
+        found[None] = next(iter(found.values()))
+    return found
+
+
+def _score_group(model, rows: np.ndarray, chosen, ordinal: bool, parts: _ItemParts | None) -> tuple[dict, tuple]:
+    """(method -> (scores, standard errors, unscored counts), rows prorated per summed factor) of one group's
+    rows: factor scores by the linear methods or the posterior mean, item sums and means by their rule."""
+    out = {}
+    factor_ones = factor_methods(chosen)
+    if factor_ones:
+        if ordinal:
+            from cfa_tool.scoring.ordinal import eap_scores
+
+            found = {factor_ones[0]: eap_scores(model, rows)}
+        else:
+            from cfa_tool.scoring.linear import score_rows
+
+            found = score_rows(model, rows, factor_ones)
+        out = {meth: (b.scores, b.standard_errors, b.unscored) for meth, b in found.items()}
+    if parts is None:
+        return out, ()
+    from cfa_tool.scoring.item_sums import item_sums
+
+    base = model.base if ordinal else model
+    sums = item_sums(rows, parts.keys, parts.lowest, parts.highest, parts.not_summed, base.factors,
+                     parts.summary.rule)
+    none = np.full(sums.sums.shape, np.nan)
+    for meth, values in ((ScoreMethod.ITEM_SUM, sums.sums), (ScoreMethod.ITEM_MEAN, sums.means)):
+        if meth in chosen:
+            out[meth] = (values, none, sums.unscored)
+    summed = [j for j, why in enumerate(parts.not_summed) if why is None]
+    return out, tuple(int(sums.prorated[j]) for j in summed)
 
 
 @dataclass(frozen=True, eq=False)
@@ -250,6 +449,8 @@ class ScoreResult(Presentable):
     # cautions about the rows' scores, shown before the tables: rows whose score of a factor rests on the other
     # factors' items alone (they answered none of its items)
     warnings: tuple[str, ...] = ()
+    # item sums and means (methods item-sum, item-mean): one summary per group, empty when neither is written
+    item_sums: tuple[ItemSumSummary, ...] = ()
 
     @property
     def rows(self) -> int:
@@ -281,6 +482,7 @@ class ScoreResult(Presentable):
             "low_determinacy": list(self.low_determinacy),
             "warnings": list(self.warnings),
             "notes": list(self.notes),
+            **({"item_sums": [g.to_dict() for g in self.item_sums]} if self.item_sums else {}),
             "fit": self.fit.to_dict(),
         }
 
@@ -300,12 +502,16 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
            group: str | None = None, reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
            missing_codes=(), keep=(), ordinal=None, ordinal_estimator: str | None = None, weights: str | None = None,
            cluster: str | None = None, strata: str | None = None, weight_kind: str | None = None,
-           **options) -> ScoreResult:
+           least_answered: float | None = None, **options) -> ScoreResult:
     """Fit ``model`` to ``data`` (as :func:`cfa_tool.fit` does, same options) and score every row.
 
     ``methods``: 'regression' (Thurstone 1935; the default), 'bartlett' (Bartlett 1937),
-    'correlation-preserving' (Anderson & Rubin 1956; ten Berge et al. 1999), or a list of them; ordinal
-    items are scored by their posterior mean with its posterior standard deviation instead.
+    'correlation-preserving' (Anderson & Rubin 1956; ten Berge et al. 1999), 'item-sum' and 'item-mean' (the keyed
+    sum or mean of each factor's items, prorated from the answered ones: scoring.item_sums), or a list of them;
+    ordinal items are scored by their posterior mean with its posterior standard deviation instead (item sums and
+    means beside it when asked for).
+    ``least_answered``: the least share of a factor's items a row must answer for an item sum or mean (default .5,
+    common practice); only with item sums or means.
     ``standard_errors``: also write each score's standard error (root mean squared error about the
     factor given the row's answered items; for regression scores the posterior standard deviation).
     ``id_column``: a column written first to name each row (never analysed); without it, the file's
@@ -325,6 +531,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     if api.summary_source(data):
         raise OptionError(f"'{data}' holds summary statistics; factor scores need the rows of answers")
     chosen = method_option(methods)
+    rule = item_rule(chosen, least_answered)
     if not isinstance(standard_errors, bool):
         raise OptionError("standard_errors must be True or False")
     fit_options = api.make_options(options, SCORES_KEYWORDS)
@@ -333,15 +540,15 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
                                                      names_row=names_row)
     api.without_exploratory_blocks(spec, "scores", "its factors' scores would be those of the unrotated block")
     frame, source = loaded.frame, loaded.source
-    read_frame = loaded.read_frame if loaded.read_frame is not None else frame
+    read_frame = _rows_as_read(loaded)
     read_index = read_frame.index
     if not read_index.is_unique:
         raise OptionError("the data frame's index names a row twice; give it a unique index (e.g. reset_index) so "
                           "that every row can be scored in its place")
     ids = row_ids(read_frame, source, id_column, spec.observed_names, group, loaded.row_names)
     ordinal_items = api.ordinal_items_of(spec, ordinal)
-    if ordinal_items:
-        _ordinal_choices(methods, standard_errors, "")
+    chosen = _ordinal_methods(methods, chosen, standard_errors, "") if ordinal_items else \
+        _with_factor_method(chosen, standard_errors)
     design = design_columns(weights, cluster, strata, weight_kind)
     loaded = api.analysed_odd_values(loaded, spec, group)
     with api.odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
@@ -361,7 +568,6 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         result = replace(result, warnings=tuple(result.warnings) + tuple(chosen_by))
     fitted_rows = _fitted_rows(frame, design, spec, group, source)
     if ordinal_items:
-        chosen = (ScoreMethod.EXPECTED_A_POSTERIORI,)
         models, labels = _ordinal_models(spec, fitted_rows, source, ordinal_items, group, reference_group, result, design)
     else:
         models, labels = _linear_models(spec, fitted_rows, source, group, reference_group, fit_options, result, design)
@@ -376,25 +582,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     errors = {meth: np.full((len(read_index), m), np.nan) for meth in chosen}
     counts: dict = {}
     position = pd.Series(np.arange(len(read_index)), index=read_index)
-    for model_g, label in zip(models, labels):
-        sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(frame))
-        if not len(sel):
-            continue
-        at = position.loc[kept[sel]].to_numpy()
-        if ordinal_items:
-            from cfa_tool.scoring.ordinal import eap_scores
-
-            out = {chosen[0]: eap_scores(model_g, rows[sel])}
-        else:
-            from cfa_tool.scoring.linear import score_rows
-
-            out = score_rows(model_g, rows[sel], chosen)
-        for meth, block in out.items():
-            values[meth][at] = block.scores
-            errors[meth][at] = block.standard_errors
-            for why, c in block.unscored.items():
-                key = (why.value, meth.value)
-                counts[key] = counts.get(key, np.zeros(m, dtype=np.int64)) + np.asarray(c, dtype=np.int64)
+    summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen,
+                                  bool(ordinal_items), position.loc[kept].to_numpy(), values, errors, counts)
     left_out = len(read_index) - len(frame)
     if left_out:
         for meth in chosen:
@@ -416,8 +605,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered) if ordinal_items else _linear_quality(models, spec)
-    extra = duplicate_note(ids, "id column" if id_column is not None else "row names") + partly_answered_note(
-        models[0].base if ordinal_items else models[0], answered, chosen[0], errors[chosen[0]])
+    extra = duplicate_note(ids, "id column" if id_column is not None else "row names") + _partly_answered(
+        models[0].base if ordinal_items else models[0], answered, chosen, errors)
     if ids is not None and id_column is None:
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
                         f"the header); give {Option.ID_COLUMN.given('COLUMN')} to name the rows by another column.")
@@ -430,7 +619,61 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
                        bool(standard_errors or ordinal_items), tuple(extra),
-                       warnings=tuple(centred_in_each_group(result.estimates) + own))
+                       warnings=tuple(centred_in_each_group(result.estimates) + own), item_sums=summaries)
+
+
+def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group, chosen, ordinal: bool,
+                      places: np.ndarray, values: dict, errors: dict, counts: dict) -> tuple[ItemSumSummary, ...]:
+    """Every row of each group scored by each chosen method into ``values`` and ``errors`` (rows read, at
+    ``places``: the place of each row of ``rows`` among them), the rows without a score counted into ``counts``
+    by (reason, method); the summary of each group's item sums and means (none when ``rule`` is None)."""
+    m = values[chosen[0]].shape[1]
+    omegas = _fitted_omegas(fit, ordinal) if rule is not None else {}
+    summaries = []
+    for model_g, label in zip(models, labels):
+        sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(rows))
+        parts = None if rule is None else _item_parts(model_g.base if ordinal else model_g, spec, fit.data,
+                                                       omegas.get(label, {}), rule,
+                                                       model_g.categories if ordinal else None)
+        prorated: tuple = ()
+        if len(sel):
+            at = places[sel]
+            out, prorated = _score_group(model_g, rows[sel], chosen, ordinal, parts)
+            for meth, (v, e, unscored) in out.items():
+                values[meth][at], errors[meth][at] = v, e
+                for why, c in unscored.items():
+                    key = (why.value, meth.value)
+                    counts[key] = counts.get(key, np.zeros(m, dtype=np.int64)) + np.asarray(c, dtype=np.int64)
+        if parts is not None:
+            summaries.append(replace(parts.summary, prorated=prorated or (0,) * len(parts.summary.factors)))
+    return tuple(summaries)
+
+
+def _partly_answered(model, answered: np.ndarray, chosen, errors: dict) -> list[str]:
+    """:func:`partly_answered_note` of the first factor-score method written (none for item sums and means alone,
+    whose prorating the report says)."""
+    first = factor_methods(chosen)
+    return partly_answered_note(model, answered, first[0], errors[first[0]]) if first else []
+
+
+def _with_factor_method(chosen, standard_errors: bool) -> tuple[ScoreMethod, ...]:
+    """``chosen``, refused with standard errors when it holds no factor-score method (a sum has no standard error
+    about the factor of its own: the report gives its reliability)."""
+    if standard_errors and not factor_methods(chosen):
+        raise OptionError(f"standard errors are those of factor scores, and item sums and means have none of their "
+                          f"own (their reliability is in the report), so standard errors cannot apply; add a factor "
+                          f"score method ({Option.SCORE_METHODS.given(['regression', 'item-sum'])}) or remove that "
+                          f"option")
+    return chosen
+
+
+def _ordinal_methods(methods, chosen, standard_errors: bool, whose: str) -> tuple[ScoreMethod, ...]:
+    """The methods of ordinal items: the posterior mean, with the item sums and means asked for beside it (a
+    linear method, or standard errors, cannot apply: :func:`_ordinal_choices`)."""
+    items = tuple(m for m in chosen if m in ITEM_METHODS)
+    _ordinal_choices(None if methods is None or (items and len(items) == len(chosen)) else methods,
+                     standard_errors, whose)
+    return (ScoreMethod.EXPECTED_A_POSTERIORI,) + (items if methods is not None else ())
 
 
 #: the keywords of :func:`scores` besides the fit options it passes on (an unknown keyword's near names,
@@ -487,7 +730,8 @@ def refuse_unknown_scale(data, what: str) -> None:
 
 
 def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
-                   sheet: str | None = None, missing_codes=(), keep=(), names_row: int | None = None) -> ScoreResult:
+                   sheet: str | None = None, missing_codes=(), keep=(), names_row: int | None = None,
+                   least_answered: float | None = None) -> ScoreResult:
     """Scores of the rows of ``data`` with the parameters of an earlier fit (``result``): a scale calibrated in one
     sample scores another.  With groups, ``data`` needs the fit's group column, and each row is scored with its
     group's parameters (a row of a group the fit does not have gets no scores).  The quality figures are those of
@@ -501,13 +745,14 @@ def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bo
     refuse_inadmissible_saved_fit({"admissible": result.admissible, "converged": result.converged}, result.problems,
                                   "the fit result given", "no factor scores are computed with it")
     chosen = _saved_methods(methods, result.method.ordinal, standard_errors)
+    rule = item_rule(chosen, least_answered)
     models, labels = models_of_fit(result)
     return _score_other_data(result, _spec_of(result), models, labels, data, chosen, standard_errors, id_column, sheet,
-                             missing_codes, keep, names_row)
+                             missing_codes, keep, names_row, rule)
 
 
 def _score_other_data(result, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
-                      keep, names_row=None) -> ScoreResult:
+                      keep, names_row=None, rule: ItemSumRule | None = None) -> ScoreResult:
     """Rows of ``data`` scored with the given models (one per group of the earlier fit ``result``)."""
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
@@ -518,7 +763,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                                                      (id_column,) if isinstance(id_column, str) else (),
                                                      names_row=names_row)
     frame, source = loaded.frame, loaded.source
-    read_frame = loaded.read_frame if loaded.read_frame is not None else frame
+    read_frame = _rows_as_read(loaded)
     if not len(read_frame):
         raise DataError(f"{source} has no rows to score")
     if not read_frame.index.is_unique:
@@ -547,9 +792,6 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     rows = _numeric(frame, base.items, source)
     group_of_row = _group_keys(frame, group) if group is not None else np.full(len(frame), None, dtype=object)
     unknown_groups = _unknown_groups(group_of_row, labels, group, source) if group is not None else None
-    from cfa_tool.scoring.linear import score_rows
-    from cfa_tool.scoring.ordinal import eap_scores
-
     m = base.m
     n = len(read_frame)
     values = {meth: np.full((n, m), np.nan) for meth in chosen}
@@ -558,17 +800,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     if ordinal:
         _check_categories(models[0], rows, row_numbers(frame), source, row_naming(frame))
     counts: dict = {}
-    for model_g, label in zip(models, labels):
-        sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(frame))
-        if not len(sel):
-            continue
-        at = position.loc[frame.index[sel]].to_numpy()
-        scored = {chosen[0]: eap_scores(model_g, rows[sel])} if ordinal else score_rows(model_g, rows[sel], chosen)
-        for meth, block in scored.items():
-            values[meth][at], errors[meth][at] = block.scores, block.standard_errors
-            for why, c in block.unscored.items():
-                key = (why.value, meth.value)
-                counts[key] = counts.get(key, np.zeros(m, dtype=np.int64)) + np.asarray(c, dtype=np.int64)
+    summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen, ordinal,
+                                  position.loc[frame.index].to_numpy(), values, errors, counts)
     for reason, number in ((RowLeftOut.FILTERED.value, n - len(frame)),
                            (RowLeftOut.NO_GROUP.value, int(pd.isna(group_of_row).sum()) if group is not None else 0),
                            (RowLeftOut.UNKNOWN_GROUP.value, int(sum(1 for v in group_of_row if not pd.isna(v)
@@ -598,7 +831,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     if scored_problems:
         result = replace(result, problems=tuple(scored_problems) + tuple(result.problems))
     notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names") \
-        + partly_answered_note(base, answered, chosen[0], errors[chosen[0]])
+        + _partly_answered(base, answered, chosen, errors)
     if group is not None:
         from cfa_tool.data.labels import label_notes
 
@@ -617,7 +850,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     return ScoreResult(result, chosen, tuple(factors), id_name, _in_file_order(pd.DataFrame(columns, index=read_frame.index),
                                                                                data),
                        tuple(quality),
-                       unscored, with_errors, tuple(notes), source, tuple(warnings))
+                       unscored, with_errors, tuple(notes), source, tuple(warnings), summaries)
 
 
 def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: str,
@@ -638,11 +871,12 @@ def _check_categories(model, rows: np.ndarray, data_rows: np.ndarray, source: st
 
 
 def _saved_methods(methods, ordinal: bool, standard_errors: bool = False) -> tuple[ScoreMethod, ...]:
-    """The scoring methods for an earlier fit: ordinal items have one, the posterior mean."""
+    """The scoring methods for an earlier fit: ordinal items have one, the posterior mean (with item sums and means
+    beside it when asked for)."""
+    chosen = method_option(methods)
     if not ordinal:
-        return method_option(methods)
-    _ordinal_choices(methods, standard_errors, "the earlier fit has ordinal items, which are")
-    return (ScoreMethod.EXPECTED_A_POSTERIORI,)
+        return _with_factor_method(chosen, standard_errors)
+    return _ordinal_methods(methods, chosen, standard_errors, "the earlier fit has ordinal items, which are")
 
 
 def _ordinal_choices(methods, standard_errors: bool, whose: str) -> None:
@@ -650,7 +884,8 @@ def _ordinal_choices(methods, standard_errors: bool, whose: str) -> None:
     scoring method or a request for standard errors cannot apply (one rule for both)."""
     scored = f"{whose or 'ordinal items are'} scored by their posterior mean, always written with its standard deviation"
     if methods is not None:
-        raise OptionError(f"{scored}, so a scoring method cannot be chosen; remove that option")
+        raise OptionError(f"{scored}, so a scoring method cannot be chosen (the item sums and means item-sum and "
+                          f"item-mean can, beside it); remove that method")
     if standard_errors:
         raise OptionError(f"{scored} (the score's standard error), so standard errors cannot be asked for; remove "
                           f"that option")
@@ -948,7 +1183,7 @@ def ordinal_models_of_estimates(spec, rows, data, labels: tuple[str, ...] | None
 
 def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_errors: bool = False,
                          id_column: str | None = None, sheet: str | None = None, missing_codes=(), keep=(),
-                         names_row: int | None = None) -> ScoreResult:
+                         names_row: int | None = None, least_answered: float | None = None) -> ScoreResult:
     """Scores of the rows of ``data`` with the parameters of a fit saved as JSON (``fit --json``) of ``model``."""
     from cfa_tool.assessment.admissibility import refuse_inadmissible_saved_fit
     from cfa_tool.data.answer_words import with_saved_coding
@@ -963,9 +1198,10 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     refuse_inadmissible_saved_fit(saved.payload, saved.problems, saved.source, "no factor scores are computed with it")
     spec = with_saved_coding(given, saved.data.answer_coding, saved.source)  # the fit's coding
     chosen = _saved_methods(methods, bool(saved.payload.get("ordinal_items")), standard_errors)
+    rule = item_rule(chosen, least_answered)
     models, labels = models_of_saved_fit(spec, saved)
     return _score_other_data(saved, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
-                             keep, names_row)
+                             keep, names_row, rule)
 
 
 def _spec_of(result: FitResult):

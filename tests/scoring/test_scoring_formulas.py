@@ -19,7 +19,8 @@ from cfa_tool.resources import resource_dir
 from cfa_tool.scoring.linear import score_rows
 from cfa_tool.scoring.methods import ScoreMethod, Unscored
 from cfa_tool.scoring.model import ScoringModel, score_inputs
-from cfa_tool.scoring.quality import score_quality, sum_scores
+from cfa_tool.scoring.item_sums import ItemSumRule, item_sums
+from cfa_tool.scoring.quality import score_quality, sum_keys
 from cfa_tool.scoring.weights import pattern_weights
 from tests.conftest import THREE_FACTORS, single_group
 
@@ -130,6 +131,12 @@ def test_sum_score_omega_is_the_reliability_modules_omega_with_positive_keys(hs_
         assert sums.reversed_items == ()
 
 
+def sum_scores(model, rows, least_share: float = 1.0):
+    """Keyed sums with a reversed answer's sign flipped (its scale taken as 0 to 0: 0 + 0 - x), by scoring.item_sums."""
+    zero = np.zeros(model.p)
+    return item_sums(rows, sum_keys(model), zero, zero, [None] * model.m, model.factors, ItemSumRule(least_share)).sums
+
+
 def test_a_reverse_keyed_item_is_reversed_in_the_sum_and_its_omega(hs_data):
     """Reflecting x2 (x2 -> -x2) makes its loading negative; the keyed sum and its omega must not change."""
     def fitted(data):
@@ -150,13 +157,15 @@ def test_a_reverse_keyed_item_is_reversed_in_the_sum_and_its_omega(hs_data):
     np.testing.assert_allclose(sum_scores(reflected, flipped_rows), sum_scores(original, rows), atol=1e-9)
 
 
-def test_a_sum_needs_every_one_of_its_items():
+def test_a_sum_of_some_items_is_prorated_only_when_enough_were_answered():
     model = _model(CORRELATED)
     rows = np.ones((2, 9))
     rows[1, 7] = np.nan
-    sums = sum_scores(model, rows)
+    sums = sum_scores(model, rows)  # every item required
     np.testing.assert_allclose(sums[0], [3.0, 3.0, 1.0])  # keys: y8 has a negative loading, so it is reversed
     assert np.isnan(sums[1, 2]) and np.isfinite(sums[1, :2]).all()
+    # at least half answered: the mean of the keyed y6 and y8 (1 and -1) times the three items
+    np.testing.assert_allclose(sum_scores(model, rows, 0.5)[1], [3.0, 3.0, 0.0])
 
 
 def test_a_covariance_matrix_that_is_not_positive_definite_is_refused_in_plain_words():

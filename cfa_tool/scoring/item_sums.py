@@ -1,0 +1,105 @@
+"""Item sums and item means: the plain scale score of scale manuals, beside the factor scores.
+
+For a factor f measured by items alone (its own items, none through factors below it) with J_f items, keys
+k_i = +1 or -1 (:func:`cfa_tool.scoring.quality.sum_keys`, the rule the fit's reliability keys its sums by) and
+each reverse-keyed item's answer scale lowest_i to highest_i, a row's keyed answers are y_i = x_i (k_i = +1) or
+lowest_i + highest_i - x_i (k_i = -1), the reversal of scale manuals (common practice).  With a the number of f's
+items the row answered:
+
+* item mean: the mean of the answered y_i;
+* item sum: J_f times that mean, which is the plain sum of the y_i when every item is answered and the prorated sum
+  (the person-mean substitution of scale manuals; common practice, recalled from memory) when some are not;
+* a row that answered fewer than the least share of f's items (:class:`ItemSumRule`: at least ceil(share J_f),
+  at least one) gets neither; a row that answered none of the model's items is counted as such.
+
+An item that loads on several factors counts on each of them (its answer is part of each scale).  A factor measured
+through other factors (higher-order) or a method factor (a way of answering) gets no item sum: the caller says which
+(``summed``).  Under the fitted model the reliability of such a sum (and of the mean, its multiple) is omega
+(McDonald 1999), which :mod:`cfa_tool.assessment.reliability` computes for the fit.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from cfa_tool.scoring.methods import LEAST_SHARE_ANSWERED, Unscored
+
+
+@dataclass(frozen=True)
+class ItemSumRule:
+    """The missing-answers rule of item sums and means: the least share of a factor's items a row must answer."""
+
+    least_share: float = LEAST_SHARE_ANSWERED
+
+    def __post_init__(self) -> None:
+        share = self.least_share
+        if isinstance(share, bool) or not isinstance(share, (int, float)) or not 0.0 < float(share) <= 1.0:
+            raise ValueError(f"the least share of a factor's items answered must be a number above 0 and at most 1, "
+                             f"not {share!r}")
+        object.__setattr__(self, "least_share", float(share))
+
+    def least_items(self, count: int) -> int:
+        """The fewest of ``count`` items a row must answer (ceil(share * count), at least 1)."""
+        return max(1, int(np.ceil(self.least_share * count - 1e-9)))
+
+    @property
+    def default(self) -> bool:
+        return self.least_share == LEAST_SHARE_ANSWERED
+
+
+@dataclass(frozen=True, eq=False)
+class ItemSums:
+    """Each row's item sum and item mean of each factor (NaN where there is none), with the counts of rows prorated
+    and left without one (by reason)."""
+
+    factors: tuple[str, ...]
+    sums: np.ndarray  # (n, m)
+    means: np.ndarray  # (n, m)
+    prorated: np.ndarray  # (m,) rows whose sum is prorated from some of the factor's items
+    unscored: dict  # Unscored -> (m,) rows without a sum or mean for that reason
+
+
+def item_sums(rows: np.ndarray, keys: np.ndarray, lowest: np.ndarray, highest: np.ndarray, not_summed: list,
+              factors: tuple[str, ...], rule: ItemSumRule = ItemSumRule()) -> ItemSums:
+    """Item sums and means of ``rows`` (n, p; NaN for no answer) by the module docstring's rule.
+
+    ``keys`` (p, m): +1, -1 or 0 (the item is not one of the factor's); ``lowest``, ``highest`` (p,): each item's
+    answer scale, needed (finite) for every item with a key of -1 on a summed factor; ``not_summed`` (m): None for a
+    factor to sum, else the :class:`Unscored` reason it has none."""
+    rows = np.asarray(rows, dtype=float)
+    keys = np.asarray(keys, dtype=float)
+    n, (p, m) = len(rows), keys.shape
+    if rows.shape[1] != p:
+        raise ValueError(f"rows have {rows.shape[1]} columns; the keys have {p} items")
+    summed = np.array([why is None for why in not_summed], dtype=bool)
+    keys = keys * summed[None, :]
+    turned = (keys < 0).any(axis=1)
+    lowest, highest = np.asarray(lowest, dtype=float), np.asarray(highest, dtype=float)
+    if not np.all(np.isfinite(lowest[turned]) & np.isfinite(highest[turned])):
+        raise ValueError("a reverse-keyed item has no answer scale to reverse it on")
+    answered = ~np.isnan(rows)
+    plain = np.where(answered, rows, 0.0)
+    reversed_answers = np.where(answered & turned, np.where(turned, lowest + highest, 0.0) - rows, 0.0)
+    total = plain @ (keys > 0) + reversed_answers @ (keys < 0)
+    member = keys != 0
+    count = answered.astype(float) @ member
+    items = member.sum(axis=0)
+    least = np.array([rule.least_items(int(j)) for j in items])
+    anything = answered.any(axis=1)
+    enough = (count >= least) & summed & (items > 0) & anything[:, None]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        means = np.where(enough, total / count, np.nan)
+    sums = means * items
+    unscored: dict = {}
+    if not anything.all():
+        unscored[Unscored.NO_ANSWERS] = np.full(m, int((~anything).sum()), dtype=np.int64)
+    answering = int(anything.sum())
+    for why in dict.fromkeys(w for w in not_summed if w is not None):
+        unscored[why] = np.array([answering if w is why else 0 for w in not_summed], dtype=np.int64)
+    few = (~enough & anything[:, None] & summed).sum(axis=0).astype(np.int64)
+    if few.any():
+        unscored[Unscored.TOO_FEW_ITEMS_ANSWERED] = few
+    prorated = (enough & (count < items)).sum(axis=0).astype(np.int64)
+    return ItemSums(tuple(factors), sums, means, prorated, unscored)
