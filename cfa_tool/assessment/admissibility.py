@@ -102,6 +102,8 @@ class ProblemKind(enum.Enum):
     # (assessment.fit_indices.POOR_FIT_BOUNDS, read from the figures the report says to read)
     POOR_FIT = ("poor fit", "poor fit", False)
     UNKNOWN_GROUPS_SCORED = ("rows in groups the fit does not have", "groups the fit lacks", False)
+    # not of the solution but of the rows scored: ids that name several rows, in a file meant to be merged by id
+    REPEATED_IDS_SCORED = ("ids that name several rows", "repeated ids", False)
     ANSWERS_BEYOND_FITTED = ("answers beyond the fitted rows", "answers beyond the fit's", False)
 
 

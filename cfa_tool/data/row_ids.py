@@ -54,16 +54,30 @@ def ids_by_row_number(ids: pd.Series | None, frame: pd.DataFrame) -> dict[int, s
     return dict(zip(row_numbers(frame).tolist(), ids.tolist()))
 
 
-def duplicate_note(ids: pd.Series | None, what: str) -> list[str]:
-    """A note when ids repeat or are missing (they then do not name one row each)."""
+def repeated_ids(ids: pd.Series | None, what: str) -> str | None:
+    """The sentence on rows that repeat an id of an earlier row (the ids then do not name one row each); None when
+    none does."""
+    if ids is None:
+        return None
+    present = ids.dropna()
+    repeated = present[present.duplicated()]
+    if not len(repeated):
+        return None
+    return (f"{what}: {len(repeated)} row{'s' if len(repeated) != 1 else ''} repeat{'' if len(repeated) != 1 else 's'} "
+            f"an id used by an earlier row (e.g. '{printable(str(repeated.iloc[0]))[:40]}'), so those ids do not name "
+            f"one row each")
+
+
+def duplicate_note(ids: pd.Series | None, what: str, repeats: bool = True) -> list[str]:
+    """A note when ids repeat (unless ``repeats`` is False: a command that says it first) or are missing (they
+    then do not name one row each)."""
     if ids is None:
         return []
     present = ids.dropna()
     notes = []
-    repeated = present[present.duplicated()]
-    if len(repeated):
-        notes.append(f"{what}: {len(repeated)} rows repeat an id used by an earlier row (e.g. "
-                     f"'{printable(str(repeated.iloc[0]))[:40]}'), so those ids do not name one row each")
+    repeated = repeated_ids(ids, what) if repeats else None
+    if repeated is not None:
+        notes.append(repeated)
     if len(present) < len(ids):
         notes.append(f"{what}: {len(ids) - len(present)} rows have no id")
     return notes

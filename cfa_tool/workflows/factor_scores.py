@@ -605,7 +605,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered) if ordinal_items else _linear_quality(models, spec)
-    extra = duplicate_note(ids, "id column" if id_column is not None else "row names") + _partly_answered(
+    result = _with_repeated_ids(result, ids, id_column)
+    extra = duplicate_note(ids, "id column" if id_column is not None else "row names", False) + _partly_answered(
         models[0].base if ordinal_items else models[0], answered, chosen, errors)
     if ids is not None and id_column is None:
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
@@ -620,6 +621,21 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality), unscored,
                        bool(standard_errors or ordinal_items), tuple(extra),
                        warnings=tuple(centred_in_each_group(result.estimates) + own), item_sums=summaries)
+
+
+def _with_repeated_ids(result, ids, id_column):
+    """``result`` with a caution first when ids repeat: a scores file is merged back by id, and a repeated id gives
+    two people each other's scores (a hostile trial found it said only in a note far down the report)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.data.row_ids import repeated_ids
+
+    said = repeated_ids(ids, "Id column" if id_column is not None else "Row names")
+    if said is None:
+        return result
+    return replace(result, problems=(Problem(
+        ProblemKind.REPEATED_IDS_SCORED, (), None, said + ": a merge of the scores file by id would match them with "
+        "the wrong rows.", "give each row an id of its own in a copy of the data file, or name the rows by another "
+        f"column ({Option.ID_COLUMN.given('COLUMN')})."),) + tuple(result.problems))
 
 
 def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group, chosen, ordinal: bool,
@@ -830,7 +846,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
             scored_problems.append(Problem(ProblemKind.ANSWERS_BEYOND_FITTED, (), None, text, advice))
     if scored_problems:
         result = replace(result, problems=tuple(scored_problems) + tuple(result.problems))
-    notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names") \
+    result = _with_repeated_ids(result, ids, id_column)
+    notes = list(notes) + duplicate_note(ids, "id column" if id_column is not None else "row names", False) \
         + _partly_answered(base, answered, chosen, errors)
     if group is not None:
         from cfa_tool.data.labels import label_notes
