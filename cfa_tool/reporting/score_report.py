@@ -65,7 +65,7 @@ def caution_lines(result) -> list[str]:
     for q in result.quality:
         for name, rho, low in zip(q.factors, q.determinacy, q.low_determinacy):
             if low:
-                lines.append(f"The determinacy of {name}{_where(q)} is {unit(rho, 2)}, below {unit(DETERMINACY_CAUTION, 2)} "
+                lines.append(f"The determinacy of {name}{_where(q)} is {unit(rho, 2, DETERMINACY_CAUTION)}, below {unit(DETERMINACY_CAUTION, 2)} "
                              f"(common practice, no single source): its scores should not be used for decisions about "
                              f"individuals.")
     return lines
@@ -103,7 +103,8 @@ def quality_table(result, k: int) -> ReportTable:
         cols = [("Factor", "l"), ("Determinacy", "r")] + [(METHOD_COLUMNS[m.method], "r") for m in q.methods]
         rows = []
         for f, name in enumerate(q.factors):
-            rows.append([name, unit(q.determinacy[f]) + (" (below .80)" if q.low_determinacy[f] else "")]
+            rows.append([name, unit(q.determinacy[f], 3, DETERMINACY_CAUTION)
+                         + (f" (below {unit(DETERMINACY_CAUTION, 2)})" if q.low_determinacy[f] else "")]
                         + [unit(m.reliability[f]) for m in q.methods])
         if sums is not None:
             omega = dict(zip(sums.factors, sums.omega))
@@ -189,7 +190,7 @@ def precision_cautions(result) -> list[str]:
         else:  # every scored factor, with its band where rows answered all its items
             bands = {p.factor: p.band_in_sd for p in precise}
             found = [(f, rel, bands.get(f)) for f, rel in zip(q.factors, q.reliability)]
-        low = [f"{factor} {unit(rel, 2)}" + (f" (95% band about ±{num(band, 2)} SD of the factor)" if band is not None
+        low = [f"{factor} {unit(rel, 2, INDIVIDUAL_DECISIONS)}" + (f" (95% band about ±{num(band, 2)} SD of the factor)" if band is not None
                                              else "") for factor, rel, band in found if rel < INDIVIDUAL_DECISIONS]
         if low:
             lines.append(f"The reliability of the {words}{_where(q)} is below the {unit(INDIVIDUAL_DECISIONS, 2)} that "
@@ -210,7 +211,8 @@ def _item_sum_cautions(result, q) -> list[str]:
     sums = _item_sums_of(result, q)
     if sums is None:
         return []
-    low = [f"{f} {unit(w, 2)}" for f, w in zip(sums.factors, sums.omega) if w == w and w < INDIVIDUAL_DECISIONS]
+    low = [f"{f} {unit(w, 2, INDIVIDUAL_DECISIONS)}" for f, w in zip(sums.factors, sums.omega)
+           if w == w and w < INDIVIDUAL_DECISIONS]
     if not low:
         return []
     return [f"The reliability (omega) of the item sums and means{_where(q)} is below the "
