@@ -179,8 +179,20 @@ def difference_test(restricted: FitResult, general: FitResult, restricted_name: 
     if design is not None and design.columns.robust:  # a weighted (pseudo-) likelihood or clustered rows: no test
         return DifferenceTest(restricted_name, general_name, diff, ddf, float("nan"), DifferenceMethod.LIKELIHOOD_RATIO,
                               r.cfi - g.cfi, r.rmsea - g.rmsea, PSEUDO_LIKELIHOOD)
+    return likelihood_ratio_difference(r.chi_square, r.df, g.chi_square, g.df, restricted_name, general_name,
+                                       r.cfi - g.cfi, r.rmsea - g.rmsea)
+
+
+def likelihood_ratio_difference(chi_restricted: float, df_restricted: int, chi_general: float, df_general: int,
+                                restricted_name: str, general_name: str, delta_cfi: float = float("nan"),
+                                delta_rmsea: float = float("nan")) -> DifferenceTest:
+    """The likelihood-ratio difference of two nested fits from their chi-squares and degrees of freedom: the
+    difference is chi-square on the difference in df (Steiger, Shapiro & Browne 1985); no p-value without df."""
+    diff = chi_restricted - chi_general
+    ddf = df_restricted - df_general
     p = float(dist.chi2_sf(max(diff, 0.0), ddf)) if ddf > 0 else float("nan")
-    return DifferenceTest(restricted_name, general_name, diff, ddf, p, DifferenceMethod.LIKELIHOOD_RATIO, r.cfi - g.cfi, r.rmsea - g.rmsea)
+    return DifferenceTest(restricted_name, general_name, diff, ddf, p, DifferenceMethod.LIKELIHOOD_RATIO, delta_cfi,
+                          delta_rmsea)
 
 
 #: why the plain likelihood-ratio difference is not a test under a sampling design

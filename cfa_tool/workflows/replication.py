@@ -59,11 +59,11 @@ import pandas as pd
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, load_data_for, load_spec, make_options, missing_codes_option,
                                       odd_values_named, refit_missing_handling, screened)
-from cfa_tool.assessment.fit_indices import chi_square_p
 from cfa_tool.data.answer_words import code_answer_words, coding_json, coding_record
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.readers import sheet_of_each
 from cfa_tool.data.kept_rows import row_naming
+from cfa_tool.data.groups import pooled
 from cfa_tool.data.moments import SampleMoments, row_numbers, sample_moments
 from cfa_tool import options as check
 from cfa_tool.options import Option, own_keywords
@@ -74,7 +74,7 @@ from cfa_tool.language.spec import Spec
 from cfa_tool.method import DifferenceMethod, FitTest, MissingData, Weighting
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.views import Presentable
-from cfa_tool.workflows.nesting import DifferenceTest
+from cfa_tool.workflows.nesting import DifferenceTest, likelihood_ratio_difference
 
 
 @dataclass(frozen=True)
@@ -212,11 +212,8 @@ def _not_tested(why: str) -> DifferenceTest:
 def _likelihood_ratio(chi_equal: float, df_equal: int, separate: tuple[FitResult, FitResult]) -> DifferenceTest:
     """The likelihood-ratio difference of the two-sample fit with one solution (``chi_equal`` on ``df_equal``)
     and the two separate fits (their chi-squares and df add up: each against its own saturated model)."""
-    diff = chi_equal - sum(r.fit.chi_square for r in separate)
-    df = df_equal - sum(r.fit.df for r in separate)
-    nan = float("nan")
-    return DifferenceTest(ONE_SOLUTION, OWN_SOLUTIONS, diff, df, chi_square_p(max(diff, 0.0), df),
-                          DifferenceMethod.LIKELIHOOD_RATIO, nan, nan)
+    return likelihood_ratio_difference(chi_equal, df_equal, sum(r.fit.chi_square for r in separate),
+                                       sum(r.fit.df for r in separate), ONE_SOLUTION, OWN_SOLUTIONS)
 
 
 def pooled_chi_square(spec: Spec, samples: tuple[SampleMoments, SampleMoments], options) -> tuple[float, int, FitResult]:
@@ -224,22 +221,25 @@ def pooled_chi_square(spec: Spec, samples: tuple[SampleMoments, SampleMoments], 
     N F(S_pooled, Sigma_hat) + sum_g n_g (log|S_pooled| - log|S_g|), Sigma_hat the one-sample fit to S_pooled
     (derived in the module docstring), on 2 p(p+1)/2 - q df."""
     names = samples[0].names
-
-    def in_order(m: SampleMoments) -> list[int]:
-        return [m.names.index(x) for x in names]
-
-    covariances = [m.covariance[np.ix_(in_order(m), in_order(m))] for m in samples]
-    n = [m.n_obs for m in samples]
-    N = sum(n)
-    S = sum(k * c for k, c in zip(n, covariances)) / N
-    means = sum(k * m.means[in_order(m)] for k, m in zip(n, samples)) / N  # not used by the covariance structure
+    ordered = [_in_order(m, names) for m in samples]
+    N = sum(m.n_obs for m in ordered)
+    S, means = pooled(ordered)  # the means are not used by the covariance structure
     fit = fit_moments(spec, SampleMoments(names, S, means, N, N, 0, "the two samples pooled"), options)
     order = [fit.observed.index(x) for x in names]
     log_det = log_det_pd(S)
     chi = N * discrepancy(S, fit.implied_covariance[np.ix_(order, order)]) + \
-        float(sum(k * (log_det - log_det_pd(c)) for k, c in zip(n, covariances)))
+        float(sum(m.n_obs * (log_det - log_det_pd(m.covariance)) for m in ordered))
     moments = len(names) * (len(names) + 1) // 2
     return chi, 2 * moments - (moments - fit.fit.df), fit
+
+
+def _in_order(moments: SampleMoments, names: tuple[str, ...]) -> SampleMoments:
+    """A sample's covariance matrix and means with its variables in the order of ``names``."""
+    if tuple(moments.names) == tuple(names):
+        return moments
+    order = [moments.names.index(x) for x in names]
+    return replace(moments, names=tuple(names), covariance=moments.covariance[np.ix_(order, order)],
+                   means=moments.means[order], rows=None)
 
 
 def _same_solution(spec: Spec, calibration: SampleMoments, validation: SampleMoments, cal: FitResult,
