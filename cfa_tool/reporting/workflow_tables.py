@@ -525,9 +525,10 @@ def invariance_report(result) -> Report:
                    f.score] for f in result.freed]
         columns = [("Level", "l"), ("Parameter", "l")] + ([("Pointed to by group", "l")] if many else []) + [
             ("Score test", "r")]
-        note = ("Each freed parameter is freed in every group: its equality across the groups is dropped, so it may "
-                "differ between any of them; 'Pointed to by group' names the group whose constraint had the largest "
-                "score test." if many else None)
+        note = (f"Score tests: {result.score_tests.phrase}, each compared with chi-square(1) at the steps' level."
+                + (" Each freed parameter is freed in every group: its equality across the groups is dropped, so it "
+                   "may differ between any of them; 'Pointed to by group' names the group whose constraint had the "
+                   "largest score test." if many else ""))
         tables.append(_table("freed", "Parameters freed by the partial-invariance search", columns, rows, note,
                              values=([c for c, _ in columns], values)))
     declared = _declared_note(result.steps)
@@ -539,7 +540,7 @@ def invariance_report(result) -> Report:
                 if step.partial else ""
             notes.append(f"The search at the {step.level} step {freed_words}stopped: {step.stopped}.")
         if not step.holds and step.culprits:
-            notes.append(f"Likeliest sources of misfit at the {step.level} step (score tests): " + "; ".join(
+            notes.append(f"Likeliest sources of misfit at the {step.level} step ({result.score_tests.phrase}): " + "; ".join(
                 f"{parameter_words(c.kind, c.variables, c.group)} ({c.index:.2f})"
                 for c in step.culprits[:5]))
     if result.latent_differences:
