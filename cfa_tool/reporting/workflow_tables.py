@@ -655,6 +655,14 @@ def replication_report(replications) -> Report:
                      "covariance matrix, its means at their maximum-likelihood values given that matrix.")
     if any(not rep.same_solution.not_computed for rep in reps):
         notes.append(SAME_SOLUTION_NOTE)
+    scaled = list(dict.fromkeys(rep.same_solution.method for rep in reps if not rep.same_solution.not_computed
+                                and rep.same_solution.method in (DifferenceMethod.SATORRA_BENTLER_2001,
+                                                                 DifferenceMethod.SATORRA_BENTLER_2010)))
+    if scaled:  # a robust test asked for: the two-sample fits' robust statistics, not the normal-theory ones
+        notes.append(f"With the robust test, the test of one solution is {' or '.join(m.phrase for m in scaled)} of "
+                     f"the two-sample fits' robust statistics, and its chi-square is that scaled difference; the "
+                     f"strictly positive version (Satorra & Bentler 2010) is used when the 2001 correction is not "
+                     f"positive.")
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions

@@ -38,7 +38,7 @@ from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.workflows.nesting import DifferenceTest, difference_test, scaled_difference_tests, scaling_at_restricted
+from cfa_tool.workflows.nesting import DifferenceTest, scaled_difference
 from cfa_tool.views import Presentable
 from cfa_tool.method import ORDINAL_FIT_CHANGE, Choice, DecisionRule  # (declared with the other choices; imported from here too)
 
@@ -744,17 +744,7 @@ class NormalLadder:
         or its strictly positive version (Satorra & Bentler 2010) when the 2001 correction is not positive; the
         likelihood-ratio difference without a robust test (or when neither scaled version can be computed)."""
         general_est, general = previous
-        if result.robust is None or general.robust is None:
-            return difference_test(result, general, level, previous_level)
-        scaled = scaled_difference_tests(result, general, level, previous_level, None)[0]
-        if not scaled.not_computed:
-            return scaled
-        c10 = scaling_at_restricted(result, general_est.table, general_est.model, general_est.likelihood,
-                                    general_est.theta, general.fit.df)
-        positive = scaled_difference_tests(result, general, level, previous_level, c10)[-1] if c10 is not None else None
-        if positive is not None and not positive.not_computed:
-            return positive
-        return difference_test(result, general, level, previous_level)
+        return scaled_difference(result, general, general_est, level, previous_level)
 
     def constraint_tests(self, est, kinds, robust: bool = False):
         """Score tests of the step's equalities: with a robust (or design-based) test, Satorra's (1989) generalized

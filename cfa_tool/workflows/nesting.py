@@ -242,6 +242,27 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
     return out
 
 
+def scaled_difference(restricted: FitResult, general: FitResult, general_estimation: Estimation, restricted_name: str,
+                      general_name: str) -> DifferenceTest:
+    """The one difference test of two nested fits that carry a robust test (the invariance ladder's steps, the
+    replication's test of one solution): the scaled difference (Satorra & Bentler 2001), or its strictly positive
+    version (Satorra & Bentler 2010, the general model's scaling factor at the restricted estimates from
+    ``general_estimation``) when the 2001 correction is not positive; the likelihood-ratio difference without a
+    robust test (or when neither scaled version can be computed)."""
+    if restricted.robust is None or general.robust is None:
+        return difference_test(restricted, general, restricted_name, general_name)
+    scaled = scaled_difference_tests(restricted, general, restricted_name, general_name, None)[0]
+    if not scaled.not_computed:
+        return scaled
+    c10 = scaling_at_restricted(restricted, general_estimation.table, general_estimation.model,
+                                general_estimation.likelihood, general_estimation.theta, general.fit.df)
+    positive = (scaled_difference_tests(restricted, general, restricted_name, general_name, c10)[-1]
+                if c10 is not None else None)
+    if positive is not None and not positive.not_computed:
+        return positive
+    return difference_test(restricted, general, restricted_name, general_name)
+
+
 def scaling_at_restricted(restricted: FitResult, table, model, likelihood, start, df: int) -> float | None:
     """The general model's scaling factor at the restricted model's estimates, for the strictly positive scaled
     difference (Satorra & Bentler 2010): the general model (``table``, ``model``) is fitted to the restricted
