@@ -19,7 +19,6 @@ import numpy as np
 from cfa_tool.data.polychoric import ordinal_moments
 from cfa_tool.assessment.admissibility import ProblemKind, not_identified
 from cfa_tool.errors import NotIdentified, OptionError, estimation_of
-from cfa_tool.language.names import read_reference, reference_text
 from cfa_tool.estimation.optimizer import minimise
 from cfa_tool.method import DifferenceMethod
 from cfa_tool.pipeline.ordinal import assess_ordinal_groups, estimate_ordinal_groups, ordinal_difference
@@ -43,7 +42,7 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
     estimations, results = [], []
     for spec in specs:
         if group is None:
-            groups = [("all", ordinal_design_covariance(ordinal_moments(complete, spec.observed_names, source,
+            groups = [(None, ordinal_design_covariance(ordinal_moments(complete, spec.observed_names, source,
                                                                         frozenset(items - ordinal_items), design=design,
                                                                         pairwise=pairwise)))]
         else:
@@ -51,7 +50,7 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
                                        design=design)
         with estimation_of(f"model {spec.title or spec.source}"):
             est = estimate_ordinal_groups(spec, groups, fit_options, method)
-            if group is None:  # one group: no group in its parameters' words ('in group all')
+            if group is None:  # one group: no group in its parameters' words (it said 'in group all')
                 est = replace(est, table=_one_group_table(est.table))
             try:
                 result = assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False)
@@ -73,10 +72,9 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
 
 def _one_group_table(table):
     """The parameter table of the one group of a comparison without groups (laid out as a group of its own,
-    'all', by the multi-group least-squares estimator) as a one-group table: its parameters' labels and problems
-    name no group."""
-    return replace(table, multigroup=False, free_labels=tuple(reference_text(*read_reference(label)[:2])
-                                                              for label in table.free_labels))
+    without a label, by the multi-group least-squares estimator) as a one-group table: its problems name no
+    group."""
+    return replace(table, multigroup=False)
 
 
 def _unidentified(spec, groups, est, fit_options, group, method, failure: NotIdentified):

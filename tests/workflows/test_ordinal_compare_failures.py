@@ -76,3 +76,17 @@ def test_one_group_names_no_group(rider_model, tmp_path, capsys):
     on_bound = [p for p in bounded["problems"] if p["kind"] == "estimate on a bound"]
     assert on_bound and on_bound[0]["parameters"] == ["loading(punctuality, short_wait)"]
     assert on_bound[0]["group"] is None
+
+
+def test_one_group_that_cannot_be_estimated_names_no_group(rider_model, tmp_path, capsys):
+    """The first 40 rows are fewer than the 59 free parameters of the three-factor ordinal model, whose estimation
+    then does not converge: the message names its parameters without a group, and the rows per parameter of the
+    sample once (not again as those of a group 'all')."""
+    _models(tmp_path, rider_model)
+    rows = tmp_path / "r40.csv"
+    rows.write_text("\n".join(DATA.read_text().splitlines()[:41]) + "\n")
+    code, out, err = run_cli(["compare", tmp_path / "m3.cfa", tmp_path / "bound.cfa", "--data", rows,
+                              "--ordinal", "all"], capsys)
+    assert code == 3 and "no model could be estimated" in err, err
+    assert "[all]" not in err and "group" not in err
+    assert "variance(punctuality)" in err
