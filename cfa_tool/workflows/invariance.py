@@ -806,7 +806,8 @@ def robust_score_tests(found: ModificationIndices, model, theta: np.ndarray, lik
     if not len(found):
         return found
     index = found.index * _score_variance_ratio(model, theta, likelihood, found)
-    order = np.argsort(-index, kind="stable")
+    kept = np.flatnonzero(np.isfinite(index))  # a robust variance that is not positive: no test, as score_tests
+    order = kept[np.argsort(-index[kept], kind="stable")]
     return ModificationIndices(found.candidates, found.labels, found.rows[order], found.groups[order], index[order],
                                found.expected_change[order], found.standardized_expected_change[order])
 
