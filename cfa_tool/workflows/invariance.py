@@ -2,7 +2,8 @@
 ladder (Meredith 1993; Vandenberg & Lance 2000), each step tested against the
 one before, with an optional search for partial invariance (Byrne,
 Shavelson & Muthén 1989) guided by score tests of the step's equality
-constraints.
+constraints: with a robust or design-based test (and for ordinal items) the
+generalized score tests of Satorra (1989), which do not assume normal data.
 
 Change in CFI is read against the -.01 guide of Cheung & Rensvold (2002) and
 change in RMSEA against the .015 guide of Chen (2007); both are common
