@@ -526,9 +526,10 @@ def invariance_report(result) -> Report:
                    f.score] for f in result.freed]
         columns = [("Level", "l"), ("Parameter", "l")] + ([("Pointed to by group", "l")] if many else []) + [
             ("Score test", "r")]
-        note = ("Each freed parameter is freed in every group: its equality across the groups is dropped, so it may "
-                "differ between any of them; 'Pointed to by group' names the group whose constraint had the largest "
-                "score test." if many else None)
+        note = (f"Score tests: {result.score_tests.phrase}, each compared with chi-square(1) at the steps' level."
+                + (" Each freed parameter is freed in every group: its equality across the groups is dropped, so it "
+                   "may differ between any of them; 'Pointed to by group' names the group whose constraint had the "
+                   "largest score test." if many else ""))
         tables.append(_table("freed", "Parameters freed by the partial-invariance search", columns, rows, note,
                              values=([c for c, _ in columns], values)))
     declared = _declared_note(result.steps)
@@ -540,7 +541,7 @@ def invariance_report(result) -> Report:
                 if step.partial else ""
             notes.append(f"The search at the {step.level} step {freed_words}stopped: {step.stopped}.")
         if not step.holds and step.culprits:
-            notes.append(f"Likeliest sources of misfit at the {step.level} step (score tests): " + "; ".join(
+            notes.append(f"Likeliest sources of misfit at the {step.level} step ({result.score_tests.phrase}): " + "; ".join(
                 f"{parameter_words(c.kind, c.variables, c.group)} ({c.index:.2f})"
                 for c in step.culprits[:5]))
     if result.latent_differences:
@@ -655,6 +656,14 @@ def replication_report(replications) -> Report:
                      "covariance matrix, its means at their maximum-likelihood values given that matrix.")
     if any(not rep.same_solution.not_computed for rep in reps):
         notes.append(SAME_SOLUTION_NOTE)
+    scaled = list(dict.fromkeys(rep.same_solution.method for rep in reps if not rep.same_solution.not_computed
+                                and rep.same_solution.method in (DifferenceMethod.SATORRA_BENTLER_2001,
+                                                                 DifferenceMethod.SATORRA_BENTLER_2010)))
+    if scaled:  # a robust test asked for: the two-sample fits' robust statistics, not the normal-theory ones
+        notes.append(f"With the robust test, the test of one solution is {' or '.join(m.phrase for m in scaled)} of "
+                     f"the two-sample fits' robust statistics, and its chi-square is that scaled difference; the "
+                     f"strictly positive version (Satorra & Bentler 2010) is used when the 2001 correction is not "
+                     f"positive.")
     title = "Replication" if len(reps) == 1 else "Replication in two random halves, each way"
     # the data's cautions first (the halves of one file: once), then the calibration fits'
     cautions = list(dict.fromkeys(p.line() for rep in reps for p in rep.data_problems)) + cautions

@@ -2,7 +2,8 @@
 ladder (Meredith 1993; Vandenberg & Lance 2000), each step tested against the
 one before, with an optional search for partial invariance (Byrne,
 Shavelson & Muthén 1989) guided by score tests of the step's equality
-constraints.
+constraints: with a robust or design-based test (and for ordinal items) the
+generalized score tests of Satorra (1989), which do not assume normal data.
 
 Change in CFI is read against the -.01 guide of Cheung & Rensvold (2002) and
 change in RMSEA against the .015 guide of Chen (2007); both are common
@@ -29,7 +30,8 @@ from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.model.description import parameter_words
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.plain import journal_decimal
-from cfa_tool.assessment.modification import ModificationIndex, equality_score_tests
+from cfa_tool.assessment.modification import ModificationIndex, ModificationIndices, equality_score_tests
+from cfa_tool.numerics.linalg import scaled_inverse
 from cfa_tool import options as check
 from cfa_tool.errors import EstimationError, ModelError, OptionError
 from cfa_tool.pipeline.continuous import FULL_INFORMATION_INSTEAD, PAIRWISE_INSTEAD, assess, estimate, rows_left_out
@@ -37,9 +39,9 @@ from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.pipeline.results import FitResult, clean
 from cfa_tool.data.sample_design import check_design, design_columns, design_summary
 from cfa_tool.numerics.threads import blas_threads_for
-from cfa_tool.workflows.nesting import DifferenceTest, difference_test, scaled_difference_tests, scaling_at_restricted
+from cfa_tool.workflows.nesting import DifferenceTest, scaled_difference
 from cfa_tool.views import Presentable
-from cfa_tool.method import ORDINAL_FIT_CHANGE, DecisionRule  # (declared with the other choices; imported from here too)
+from cfa_tool.method import ORDINAL_FIT_CHANGE, Choice, DecisionRule  # (declared with the other choices; imported from here too)
 
 LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
     # level, classes held equal, parameter kinds the step adds
@@ -90,6 +92,18 @@ SEARCH_WARNING = (
 #: freeing more than half of a step's equalities leaves a step that is hardly invariant (common practice asks that
 #: most indicators stay invariant; Vandenberg & Lance 2000)
 MANY_FREED_SHARE = 0.5
+
+
+class ScoreTests(Choice):
+    """Which score tests of a step's equalities the partial search reads (and compares with chi-square(1) to decide
+    whether to go on), chosen by the tool with the test: ``value`` the JSON's word, ``phrase`` the reports'."""
+
+    #: continuous items fitted with the normal-theory test: the score tests of the likelihood (Sorbom 1989)
+    NORMAL = ("normal theory", "normal-theory", "normal-theory score tests (Sorbom 1989)", False)
+    #: a robust or design-based test, and ordinal items: the score statistic over the robust (sandwich) variance of
+    #: the score (Satorra 1989), chi-square(1) without normality
+    ROBUST = ("robust", "robust", "robust score tests (the generalized score test of Satorra 1989), which do not "
+                                  "assume normal data", False)
 
 
 @dataclass(frozen=True)
@@ -229,6 +243,13 @@ class InvarianceResult(Presentable):
     #: why the first group is the reference group (data.groups.ReferenceRule: chosen, or the default rule)
     reference_rule: object = None
 
+    @property
+    def score_tests(self) -> ScoreTests:
+        """The score tests of the steps' equalities (the search's guide): robust with a robust or design-based test
+        and for ordinal items, normal-theory otherwise."""
+        first = self.steps[0].result
+        return ScoreTests.ROBUST if first.method.ordinal or first.robust is not None else ScoreTests.NORMAL
+
     def to_dict(self) -> dict:
         data = self._data_dict()
         return {
@@ -241,6 +262,8 @@ class InvarianceResult(Presentable):
             "groups": list(self.groups),
             "alpha": self.alpha,
             "decision_rule": {"name": self.rule.value, "description": self.rule.description},
+            # which score tests the steps' constraint tests (and the partial search's stop rule) are
+            "score_tests": {"name": self.score_tests.value, "description": self.score_tests.phrase},
             # ordinal fits: the steps' delta_cfi and delta_rmsea are null, and why (as compare says it)
             "fit_index_changes_left_out": ORDINAL_FIT_CHANGE if self.steps[0].result.method.ordinal else None,
             "steps": [s.to_dict() for s in self.steps],
@@ -383,7 +406,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             if full is None:
                 full = (result, test, holds)
             with threads:
-                culprits = tuple(ladder.constraint_tests(est, kinds)) if kinds else ()
+                culprits = tuple(ladder.constraint_tests(est, kinds, result.robust is not None)) if kinds else ()
             culprits = _one_per_constraint(tuple(c for c in culprits if _may_free(c, exceptions, level_spec, kinds)),
                                            labels)
             if holds:
@@ -725,20 +748,13 @@ class NormalLadder:
         or its strictly positive version (Satorra & Bentler 2010) when the 2001 correction is not positive; the
         likelihood-ratio difference without a robust test (or when neither scaled version can be computed)."""
         general_est, general = previous
-        if result.robust is None or general.robust is None:
-            return difference_test(result, general, level, previous_level)
-        scaled = scaled_difference_tests(result, general, level, previous_level, None)[0]
-        if not scaled.not_computed:
-            return scaled
-        c10 = scaling_at_restricted(result, general_est.table, general_est.model, general_est.likelihood,
-                                    general_est.theta, general.fit.df)
-        positive = scaled_difference_tests(result, general, level, previous_level, c10)[-1] if c10 is not None else None
-        if positive is not None and not positive.not_computed:
-            return positive
-        return difference_test(result, general, level, previous_level)
+        return scaled_difference(result, general, general_est, level, previous_level)
 
-    def constraint_tests(self, est, kinds):
-        return equality_score_tests(est.model, est.theta, est.likelihood, kinds)
+    def constraint_tests(self, est, kinds, robust: bool = False):
+        """Score tests of the step's equalities: with a robust (or design-based) test, Satorra's (1989) generalized
+        score tests (:func:`robust_score_tests`), else the normal-theory ones."""
+        found = equality_score_tests(est.model, est.theta, est.likelihood, kinds)
+        return robust_score_tests(found, est.model, est.theta, est.likelihood) if robust else found
 
 
 class OrdinalLadder:
@@ -768,13 +784,84 @@ class OrdinalLadder:
         general_est, general = previous
         return difference_record(ordinal_difference(est, general_est), level, previous_level, result, general)
 
-    def constraint_tests(self, est, kinds):
+    def constraint_tests(self, est, kinds, robust: bool = True):
+        """Robust score tests of the step's equalities (Satorra 1989; pipeline.ordinal.ordinal_score_tests): the only
+        ones least squares has."""
         from cfa_tool.assessment.modification import constrained_entries
         from cfa_tool.pipeline.ordinal import ordinal_score_tests
 
         table = est.table
         return ordinal_score_tests(est, [constrained_entries(table, kinds, g) + _pinned_entries(table, kinds, g)
                                          for g in range(table.n_groups)])
+
+
+def robust_score_tests(found: ModificationIndices, model, theta: np.ndarray, likelihood) -> ModificationIndices:
+    """The normal-theory score tests ``found`` (assessment.modification) made robust to non-normal data and to a
+    sampling design: Satorra's (1989) generalized score test, the score statistic over the robust (sandwich)
+    variance of the score instead of its normal-theory variance.  For a constraint gamma (a group's deviation from
+    the common value) with information A and meat B of the model enlarged by gamma (both at the restricted
+    estimates), the efficient score is s_gamma - A_gt A_tt^-1 s_theta; its normal-theory variance is
+    h = A_gg - A_gt A_tt^-1 A_tg (the denominator of the normal-theory statistic; Sorbom 1989) and its robust
+    variance L B L', L = (-A_gt A_tt^-1, 1).  So the robust statistic is the normal-theory one times h / (L B L')
+    (times 2 for rows with gaps, whose meat is twice the information under normality; Yuan & Bentler 2000).  A and
+    B are those of inference.robust (Satorra & Bentler 1994: A = Delta' V Delta, B = Delta' V Gamma V Delta, over
+    the groups' stacked moments under their design) and of inference.robust_missing (rows with gaps: the rows'
+    scores in the saturated moments).  The expected changes stay as they are."""
+    if not len(found):
+        return found
+    index = found.index * _score_variance_ratio(model, theta, likelihood, found)
+    kept = np.flatnonzero(np.isfinite(index))  # a robust variance that is not positive: no test, as score_tests
+    order = kept[np.argsort(-index[kept], kind="stable")]
+    return ModificationIndices(found.candidates, found.labels, found.rows[order], found.groups[order], index[order],
+                               found.expected_change[order], found.standardized_expected_change[order])
+
+
+def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: ModificationIndices) -> np.ndarray:
+    """h / (L B L') of :func:`robust_score_tests` for each row of ``found`` (NaN where the robust variance is not
+    positive)."""
+    from cfa_tool.assessment.modification import candidate_arrays
+    from cfa_tool.model.implied import entry_derivatives
+    from cfa_tool.inference.robust import _group_blocks, moments_meat, vech_indices
+
+    q, k = len(theta), len(found)
+    I, J = vech_indices(model.p)
+    complete = not hasattr(likelihood, "patterns")
+    bread = np.zeros((q + k, q + k))
+    meat = np.zeros((q + k, q + k))
+    weighted = []
+    omega = moments_meat(likelihood, likelihood.means) if complete else None
+    for g, w in enumerate(likelihood.weights):
+        mats = model.matrices(theta, g)
+        mine = np.flatnonzero(found.groups == g)
+        c_sigma, c_mu = entry_derivatives(mats, *candidate_arrays([found.candidates[r] for r in found.rows[mine]]))
+        if complete:  # (means,) vech: the layout of inference.robust
+            delta, V = _group_blocks(model, theta, likelihood, g)
+            extra = np.vstack([c_mu.T, c_sigma[:, I, J].T]) if likelihood.means else c_sigma[:, I, J].T
+        else:  # means, vech: the layout of inference.robust_missing
+            from cfa_tool.inference.design import design_meat
+            from cfa_tool.inference.robust_missing import _model_directions, _moment_directions, moment_scores
+
+            delta = _model_directions(likelihood, theta, g)
+            extra = np.vstack([c_mu.T, c_sigma[:, I, J].T])
+            scores, parts = moment_scores(likelihood.patterns[g], mats.implied_mean(), mats.implied_covariance())
+            V = parts.information(*_moment_directions(model.p))
+        X = np.zeros((delta.shape[0], q + k))
+        X[:, :q] = delta
+        X[:, q + mine] = extra
+        VX = V @ X
+        bread += w * X.T @ VX
+        if complete:
+            weighted.append(w * VX)
+        else:
+            meat += w * X.T @ design_meat(scores, likelihood.groups[g].design) @ X
+    if complete:
+        meat = omega.middle(weighted)
+    K = bread[q:, :q] @ scaled_inverse(bread[:q, :q])  # A_gt A_tt^-1, one row per constraint
+    normal = np.diag(bread)[q:] - np.einsum("cq,cq->c", K, bread[q:, :q])
+    robust = (np.diag(meat)[q:] - 2.0 * np.einsum("cq,cq->c", K, meat[q:, :q])
+              + np.einsum("cq,cq->c", K @ meat[:q, :q], K))
+    ratio = normal / np.where(robust > 0, robust, np.nan)
+    return ratio if complete else 2.0 * ratio
 
 
 def _pinned_entries(table, kinds: tuple[str, ...], group: int) -> list:

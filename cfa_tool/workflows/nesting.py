@@ -179,8 +179,20 @@ def difference_test(restricted: FitResult, general: FitResult, restricted_name: 
     if design is not None and design.columns.robust:  # a weighted (pseudo-) likelihood or clustered rows: no test
         return DifferenceTest(restricted_name, general_name, diff, ddf, float("nan"), DifferenceMethod.LIKELIHOOD_RATIO,
                               r.cfi - g.cfi, r.rmsea - g.rmsea, PSEUDO_LIKELIHOOD)
+    return likelihood_ratio_difference(r.chi_square, r.df, g.chi_square, g.df, restricted_name, general_name,
+                                       r.cfi - g.cfi, r.rmsea - g.rmsea)
+
+
+def likelihood_ratio_difference(chi_restricted: float, df_restricted: int, chi_general: float, df_general: int,
+                                restricted_name: str, general_name: str, delta_cfi: float = float("nan"),
+                                delta_rmsea: float = float("nan")) -> DifferenceTest:
+    """The likelihood-ratio difference of two nested fits from their chi-squares and degrees of freedom: the
+    difference is chi-square on the difference in df (Steiger, Shapiro & Browne 1985); no p-value without df."""
+    diff = chi_restricted - chi_general
+    ddf = df_restricted - df_general
     p = float(dist.chi2_sf(max(diff, 0.0), ddf)) if ddf > 0 else float("nan")
-    return DifferenceTest(restricted_name, general_name, diff, ddf, p, DifferenceMethod.LIKELIHOOD_RATIO, r.cfi - g.cfi, r.rmsea - g.rmsea)
+    return DifferenceTest(restricted_name, general_name, diff, ddf, p, DifferenceMethod.LIKELIHOOD_RATIO, delta_cfi,
+                          delta_rmsea)
 
 
 #: why the plain likelihood-ratio difference is not a test under a sampling design
@@ -228,6 +240,27 @@ def scaled_difference_tests(restricted: FitResult, general: FitResult, restricte
                                               is not None else "the strictly positive version is not available "
                                                                "either"))))
     return out
+
+
+def scaled_difference(restricted: FitResult, general: FitResult, general_estimation: Estimation, restricted_name: str,
+                      general_name: str) -> DifferenceTest:
+    """The one difference test of two nested fits that carry a robust test (the invariance ladder's steps, the
+    replication's test of one solution): the scaled difference (Satorra & Bentler 2001), or its strictly positive
+    version (Satorra & Bentler 2010, the general model's scaling factor at the restricted estimates from
+    ``general_estimation``) when the 2001 correction is not positive; the likelihood-ratio difference without a
+    robust test (or when neither scaled version can be computed)."""
+    if restricted.robust is None or general.robust is None:
+        return difference_test(restricted, general, restricted_name, general_name)
+    scaled = scaled_difference_tests(restricted, general, restricted_name, general_name, None)[0]
+    if not scaled.not_computed:
+        return scaled
+    c10 = scaling_at_restricted(restricted, general_estimation.table, general_estimation.model,
+                                general_estimation.likelihood, general_estimation.theta, general.fit.df)
+    positive = (scaled_difference_tests(restricted, general, restricted_name, general_name, c10)[-1]
+                if c10 is not None else None)
+    if positive is not None and not positive.not_computed:
+        return positive
+    return difference_test(restricted, general, restricted_name, general_name)
 
 
 def scaling_at_restricted(restricted: FitResult, table, model, likelihood, start, df: int) -> float | None:

@@ -17,7 +17,8 @@ from dataclasses import replace
 import numpy as np
 
 from cfa_tool.data.polychoric import ordinal_moments
-from cfa_tool.errors import OptionError, estimation_of
+from cfa_tool.assessment.admissibility import ProblemKind, not_identified
+from cfa_tool.errors import NotIdentified, OptionError, estimation_of
 from cfa_tool.estimation.optimizer import minimise
 from cfa_tool.method import DifferenceMethod
 from cfa_tool.pipeline.ordinal import assess_ordinal_groups, estimate_ordinal_groups, ordinal_difference
@@ -41,7 +42,7 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
     estimations, results = [], []
     for spec in specs:
         if group is None:
-            groups = [("all", ordinal_design_covariance(ordinal_moments(complete, spec.observed_names, source,
+            groups = [(None, ordinal_design_covariance(ordinal_moments(complete, spec.observed_names, source,
                                                                         frozenset(items - ordinal_items), design=design,
                                                                         pairwise=pairwise)))]
         else:
@@ -49,7 +50,12 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
                                        design=design)
         with estimation_of(f"model {spec.title or spec.source}"):
             est = estimate_ordinal_groups(spec, groups, fit_options, method)
-            result = assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False)
+            if group is None:  # one group: no group in its parameters' words (it said 'in group all')
+                est = replace(est, table=_one_group_table(est.table))
+            try:
+                result = assess_ordinal_groups(spec, groups, est, fit_options, group, method, modification=False)
+            except NotIdentified as failure:  # reported among the others, as compare of continuous items does
+                result = _unidentified(spec, groups, est, fit_options, group, method, failure)
         estimations.append(est)
         if group is None and result.fit is not None:
             # 'fit' of one group estimates the thresholds in a first step and does not count them, nor (beside
@@ -62,6 +68,22 @@ def fit_ordinal_models(specs, complete, source, group, reference_group, fit_opti
             result = with_design(result, design_summary(complete, design, [m for _, m in groups]))
         results.append(result)
     return estimations, results
+
+
+def _one_group_table(table):
+    """The parameter table of the one group of a comparison without groups (laid out as a group of its own,
+    without a label, by the multi-group least-squares estimator) as a one-group table: its problems name no
+    group."""
+    return replace(table, multigroup=False)
+
+
+def _unidentified(spec, groups, est, fit_options, group, method, failure: NotIdentified):
+    """A model the data do not identify (``failure``: the rank check's error) as a result that could not be
+    estimated, that problem first, as pipeline.continuous.unestimated makes it for continuous items."""
+    result = assess_ordinal_groups(spec, groups, replace(est, converged=False, message=str(failure)), fit_options,
+                                   group, method, modification=False)
+    return replace(result, problems=tuple(not_identified(failure.parameters) if p.kind is ProblemKind.NOT_CONVERGED
+                                          else p for p in result.problems))
 
 
 def statistic_order(names_from: tuple[str, ...], names_to: tuple[str, ...], n_thresholds: dict[str, int],

@@ -50,7 +50,7 @@ def test_a_step_whose_2001_correction_is_not_positive_reads_the_strictly_positiv
     # full-information factor is checked against a hand computation in test_compare_and_replicate.py)
     import dataclasses
 
-    from cfa_tool.workflows import invariance as ladder_module
+    from cfa_tool.workflows import nesting as ladder_module  # the ladder's scaled differences: nesting.scaled_difference
     from cfa_tool.workflows.compare import compare
 
     original = ladder_module.scaled_difference_tests

@@ -159,8 +159,9 @@ def test_the_two_sample_full_information_test_is_the_likelihood_ratio_scipy_maxi
 
 def test_a_robust_test_asked_for_gives_no_normal_theory_test_of_one_solution(hs_data):
     # review s11: with test='robust' the test of one solution took the plain likelihood-ratio difference (28 of 30
-    # true replications of heavy-tailed answers rejected) and, with complete rows, failed with an error about raw rows
+    # true replications of heavy-tailed answers rejected) and, with complete rows, failed with an error about raw rows;
+    # review s12: it is the scaled difference (tests/workflows/test_replication_robust_one_solution.py checks it)
     rep = cfa_tool.replicate(THREE_FACTORS, hs_data.iloc[:150], hs_data.iloc[150:], test="robust")
-    assert rep.same_solution.not_computed and "robust test was asked for" in rep.same_solution.not_computed
+    assert not rep.same_solution.not_computed
     block = rep.entry()["same_solution_test"]
-    assert block["p_value"] is None or block["p_value"] != block["p_value"]  # no p-value, JSON null
+    assert block["method"] == "Satorra-Bentler 2001 scaled difference" and 0.0 < block["p_value"] < 1.0
