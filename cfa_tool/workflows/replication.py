@@ -66,6 +66,7 @@ import pandas as pd
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, load_spec, make_options, odd_values_named,
                                       read_inputs_with_notes, refit_missing_handling)
+from cfa_tool.assessment.admissibility import inadmissible_words
 from cfa_tool.data.answer_words import coding_json, coding_record
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.readers import sheet_of_each
@@ -218,6 +219,29 @@ def _not_tested(why: str) -> DifferenceTest:
     return DifferenceTest(ONE_SOLUTION, OWN_SOLUTIONS, nan, 0, nan, DifferenceMethod.LIKELIHOOD_RATIO, nan, nan, why)
 
 
+#: the two-sample model with one solution, as :func:`_impossible` names it
+JOINT = "two-sample model with one solution"
+
+
+def _samples(cal: FitResult, loose: FitResult) -> tuple:
+    return (("calibration sample", cal), ("validation sample", loose))
+
+
+def _impossible(named) -> DifferenceTest | None:
+    """The test of one solution not computed when a solution it compares is not admissible (``named``: (what,
+    FitResult) pairs): a hostile trial found it read off a validation refit with negative residual variances and a
+    two-sample model with a residual correlation of -5, stated plainly.  None when every solution is admissible."""
+    bad = [what for what, r in named if r is not None and r.converged and not r.admissible]
+    if not bad:
+        return None
+    # the problems themselves are named where each solution is reported; the two-sample model's here
+    joint = [f" ({'; '.join(inadmissible_words(r.problems))})" for what, r in named if what == JOINT and what in bad]
+    whose = (f"the {bad[0]}'s solution is" if len(bad) == 1 else
+             f"the solutions of the {' and of the '.join(bad)} are")
+    return _not_tested(f"{whose} not admissible{''.join(joint)}, and a test between impossible solutions cannot show "
+                       f"whether the samples share one")
+
+
 def _likelihood_ratio(chi_equal: float, df_equal: int, separate: tuple[FitResult, FitResult]) -> DifferenceTest:
     """The likelihood-ratio difference of the two-sample fit with one solution (``chi_equal`` on ``df_equal``)
     and the two separate fits (their chi-squares and df add up: each against its own saturated model)."""
@@ -271,14 +295,14 @@ def _same_solution(spec: Spec, calibration: SampleMoments, validation: SampleMom
             chi, df, pooled = pooled_chi_square(spec, (calibration, validation), fit_options)
         if not pooled.converged:
             return _not_tested(f"the model did not converge in the two samples pooled ({pooled.message})")
-        return _likelihood_ratio(chi, df, (cal, loose))
+        return _impossible(((JOINT, pooled),)) or _likelihood_ratio(chi, df, (cal, loose))
     fit_options = replace(make_options({**options, "missing": MissingData.FULL_INFORMATION}), diagnostics=False)
     with estimation_of("the two samples with one solution"):
         both = fit_moments(_one_solution_spec(spec), [("calibration", calibration), ("validation", validation)],
                            fit_options, "sample")
     if not both.converged:
         return _not_tested(f"the two-sample model with one solution did not converge ({both.message})")
-    return _likelihood_ratio(both.fit.chi_square, both.fit.df, (cal, loose))
+    return _impossible(((JOINT, both),)) or _likelihood_ratio(both.fit.chi_square, both.fit.df, (cal, loose))
 
 
 def _scaled_same_solution(spec: Spec, calibration: SampleMoments, validation: SampleMoments, options: dict,
@@ -302,6 +326,9 @@ def _scaled_same_solution(spec: Spec, calibration: SampleMoments, validation: Sa
         return _not_tested("the two-sample fit with the robust test did not converge ("
                            + "; ".join(f"{name}: {r.message}" for name, r in ((OWN_SOLUTIONS, own), (ONE_SOLUTION, one))
                                        if not r.converged) + ")")
+    impossible = _impossible(((JOINT, one),))
+    if impossible is not None:
+        return impossible
     # as the likelihood-ratio test of one solution, no change in fit indices: the test is what is read
     return replace(scaled_difference(one, own, own_est, ONE_SOLUTION, OWN_SOLUTIONS), delta_cfi=float("nan"),
                    delta_rmsea=float("nan"))
@@ -337,8 +364,9 @@ def replicate_moments(spec: Spec, calibration: SampleMoments, validation: Sample
         F_saturated = fixed_covariance_discrepancy(rows, cal.sample_covariance, saturated)
     else:
         F, F_saturated = discrepancy(S_val, sigma_cal), discrepancy(S_val, cal.sample_covariance)
-    return Replication(calibration.source, validation.source, cal, loose,
-                       same_solution or _same_solution(spec, calibration, validation, cal, loose, options), F, F_saturated,
+    test = same_solution or _impossible(_samples(cal, loose)) or _same_solution(spec, calibration, validation, cal,
+                                                                                 loose, options)
+    return Replication(calibration.source, validation.source, cal, loose, test, F, F_saturated,
                        rows=(sample_rows(calibration, cal), sample_rows(validation, loose)))
 
 
@@ -366,7 +394,7 @@ def replicate_ordinal(spec: Spec, calibration, validation, method: Weighting | s
         e = r[pairs] - rho[pairs]
         return float(e @ (weights * e))
 
-    test = _same_ordinal_solution(spec, together, loose, fit_options, method)
+    test = _impossible(_samples(cal, loose)) or _same_ordinal_solution(spec, together, loose, fit_options, method)
     return Replication(calibration.source, validation.source, cal, loose, test, discrepancy_of(cal.implied_covariance),
                        discrepancy_of(cal.sample_covariance), adjusted=True,
                        rows=(sample_rows(calibration, cal), sample_rows(validation, loose)))

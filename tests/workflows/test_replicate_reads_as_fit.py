@@ -42,3 +42,22 @@ def test_answers_beyond_a_declared_scale_are_refused_as_fit_refuses_them(files, 
     assert err.splitlines()[0] == said_by_fit
     assert f"{file} holds answers outside the scale 1 to 5 declared here: 'clean' 7 (5 cells" in err
     assert "Traceback" not in err
+
+
+def test_no_test_of_one_solution_between_impossible_solutions(files):
+    # hostile s12: a 15-row validation sample whose refit has negative residual variances (-3.74, -1.38) got the
+    # test of one solution stated plainly (chi-square(27) = 51.49, p = .003: "the samples' solutions differ")
+    from cfa_tool.workflows.replication import replicate
+
+    rows = pd.read_csv(resource_dir("demo") / "rider_survey.csv")
+    model = (resource_dir("models") / "rider_three_factors.cfa").read_text()
+    result = replicate(model, rows.iloc[:240], rows.iloc[240:255])
+    assert not result.loose.admissible and result.calibration_result.admissible
+    test = result.same_solution
+    assert test.p_value != test.p_value  # not computed (NaN)
+    assert test.not_computed.startswith("the validation sample's solution is not admissible, and a test between "
+                                        "impossible solutions")
+    assert result.to_dict()["replications"][0]["same_solution_test"]["p_value"] is None
+    # an admissible pair keeps its test
+    fine = replicate(model, rows.iloc[:240], rows.iloc[240:])
+    assert fine.loose.admissible and fine.same_solution.p_value == fine.same_solution.p_value
