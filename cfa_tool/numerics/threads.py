@@ -8,19 +8,12 @@ Where threads are set (one rule, so that they never oversubscribe the cores):
 * a fit (its data moments, estimation and report) of up to :data:`SMALL_MODEL` items runs with one BLAS thread;
 * worker processes of bootstraps, cutoffs and power simulations (``workflows.parallel``) run with one
   thread each, the parallelism being across processes (:func:`one_blas_thread_from_now`, with the libraries
-  the parent process found: a forked worker does not search for them again);
-* two independent pieces of one fit's report may run side by side, in the caller's thread and one more, each with
-  one BLAS thread (:func:`side_thread`), only where that adds no thread beyond the cores: the BLAS libraries run one
-  thread, the process is no worker of many fits, the fit runs in the program's main thread, and the machine's load
-  leaves a core idle.
+  the parent process found: a forked worker does not search for them again).
 """
 
 from __future__ import annotations
 
 import contextlib
-import os
-import sys
-import threading
 from functools import lru_cache
 
 SMALL_MODEL = 250  # indicators; up to this one BLAS thread is never much slower than several and never oversubscribes
@@ -36,8 +29,6 @@ def blas_threads_for(p: int):
 
 def one_blas_thread_from_now() -> None:
     """This process's BLAS libraries run one thread from now on (a worker process of many fits)."""
-    global _worker
-    _worker = True
     for lib in blas_libraries():
         if lib.num_threads != 1:
             lib.set_num_threads(1)
@@ -73,37 +64,3 @@ def blas_libraries() -> tuple:
     from threadpoolctl import ThreadpoolController
 
     return tuple(lib for lib in ThreadpoolController().lib_controllers if lib.user_api == "blas")
-
-
-_worker = False  # set in worker processes of many fits (one_blas_thread_from_now): no thread beside the fit there
-
-
-def side_thread():
-    """An executor of one thread in which a piece of a fit may run beside the caller's thread, or None where a second
-    thread could oversubscribe the cores: it is given only when the process has at least two cores, the load average
-    of the last minute leaves one of them idle (below the cores less one half: the caller's own fit counts about
-    one), the BLAS libraries run one thread (inside :func:`blas_threads_for`), the caller is the program's main
-    thread (a program running fits from threads of its own has shared the cores out itself) and the process is no
-    worker of many fits (those are as many as the cores)."""
-    if (_worker or threading.current_thread() is not threading.main_thread()
-            or ("multiprocessing" in sys.modules and sys.modules["multiprocessing"].parent_process() is not None)):
-        return None
-    try:
-        cores = len(os.sched_getaffinity(0))
-    except AttributeError:  # no affinity outside Linux
-        cores = os.cpu_count() or 1
-    try:
-        idle = cores >= 2 and os.getloadavg()[0] < cores - 0.5
-    except (AttributeError, OSError):  # no load average (Windows): the load cannot be judged
-        idle = False
-    if not idle or any(lib.num_threads != 1 for lib in blas_libraries()):
-        return None
-    return _executor()
-
-
-@lru_cache(maxsize=1)
-def _executor():
-    """The one thread, made at its first use and kept (starting a thread costs about as much as a small fit's step)."""
-    from concurrent.futures import ThreadPoolExecutor
-
-    return ThreadPoolExecutor(max_workers=1, thread_name_prefix="cfa-tool-side")

@@ -6,7 +6,6 @@ itself.
 
 from __future__ import annotations
 
-import contextvars
 from dataclasses import dataclass, replace
 from functools import lru_cache
 from typing import TYPE_CHECKING
@@ -41,7 +40,7 @@ from cfa_tool.model.parameters import ParameterTable, build_parameter_table
 from cfa_tool.model.rescale import variance_scaled
 from cfa_tool.model.starts import starting_values
 from cfa_tool.numerics.linalg import scaled_factor
-from cfa_tool.numerics.threads import blas_threads_for, side_thread
+from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.options import Option
 from cfa_tool.pipeline.results import DEFAULT_MI_THRESHOLD, DataSummary, EstimateRow, FitResult, GroupResult, fit_result
 
@@ -292,7 +291,6 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     robust = None
     inference = None
     mis = ModificationIndices()
-    beside = None  # each group's whitened rows and Mardia's tests, when computed beside the score tests
     robust_wanted = options.test is FitTest.SATORRA_BENTLER
     yuan_bentler = options.test is FitTest.YUAN_BENTLER
     if robust_wanted and any(gm.rows is None for gm in likelihood.groups):
@@ -344,7 +342,6 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                                              factor if information is evaluation.information else None)
         inference = wald_inference(values, model.J, cov_theta)
         if options.modification_indices:
-            beside = _normality_beside(likelihood.groups, options.diagnostics, table.p)  # Mardia's tests meanwhile
             mis = modification_indices(model, theta, likelihood, exogenous_factors(spec), mats, factor)
     else:
         # a model that is not identified often shows itself by not converging: say so when it is the cause
@@ -362,7 +359,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     for g, ((label, m), gm) in enumerate(zip(groups, likelihood.groups)):
         sigma = mats[g].implied_covariance()
         # shared below; unweighted rows are those the sample moments were computed from
-        whitened, normality = beside[g].result() if beside is not None else _rows_normality(gm, options.diagnostics)
+        whitened = (whitened_rows(gm.rows, (gm.mean, gm.covariance) if gm.design is None else None)
+                    if options.diagnostics and gm.rows is not None else None)
         share = likelihood.n_total * likelihood.weights[g] * likelihood.group_discrepancy(theta, g) if est.converged else None
         group_results.append(
             GroupResult(
@@ -377,7 +375,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 sample_mean=gm.mean,
                 implied_mean=mats[g].implied_mean() if means else None,
                 latent_covariance=mats[g].latent_covariance(),
-                normality=normality,
+                normality=mardia(gm.rows, whitened, _frequency_weights(gm)) if whitened is not None else None,
                 **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics,
                                      spec.reverse_keyed or None, spec.method_factors | spec.exploratory_factors, whitened,
                                      likelihood.sigma_inverse(theta, g) if hasattr(likelihood, "sigma_inverse") else None,
@@ -417,34 +415,6 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                       warnings=warnings, options=options, group_column=group_column, problems=problems,
                       parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels, model=model,
                       completely_at_random=missingness)
-
-
-#: items from which Mardia's tests run beside the score tests when a second core is idle (numerics.threads.side_thread):
-#: at 30 items and N = 1,000 the two take about 0.6 and 0.4 ms, at 60 items 2.1 and 1.8 ms (whitened rows with them)
-SIDE_BY_SIDE_ITEMS = 30
-
-
-def _rows_normality(gm: GroupMoments, wanted: bool) -> tuple[Whitened | None, object]:
-    """(the group's whitened rows, Mardia's tests of them), shared with the case diagnostics; (None, None) without
-    rows or when the diagnostics are not wanted."""
-    if not wanted or gm.rows is None:
-        return None, None
-    whitened = whitened_rows(gm.rows, (gm.mean, gm.covariance) if gm.design is None else None)
-    return whitened, mardia(gm.rows, whitened, _frequency_weights(gm))
-
-
-def _normality_beside(groups: list[GroupMoments], wanted: bool, p: int) -> list | None:
-    """Each group's :func:`_rows_normality` started in a thread beside the caller's (the score tests run meanwhile:
-    neither reads what the other makes, and each runs the same arithmetic as alone, so the numbers are the same to
-    the bit), when the model has at least :data:`SIDE_BY_SIDE_ITEMS` items and a core is idle
-    (:func:`~cfa_tool.numerics.threads.side_thread`); None otherwise, the tests then computed in turn.  The caller's
-    context (numpy's error state among it) goes with the work."""
-    if not wanted or p < SIDE_BY_SIDE_ITEMS or all(gm.rows is None for gm in groups):
-        return None
-    side = side_thread()
-    if side is None:
-        return None
-    return [side.submit(contextvars.copy_context().run, _rows_normality, gm, wanted) for gm in groups]
 
 
 def _completely_at_random(likelihood: MissingDataLikelihood, labels):
