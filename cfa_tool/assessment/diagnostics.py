@@ -85,13 +85,32 @@ def case_diagnostics(rows: np.ndarray, sigma: np.ndarray, row_numbers: np.ndarra
     return found[:shown], found[shown:]
 
 
+#: values from which :func:`descending_order` tries numpy's default sort first (below it the stable sort is about as
+#: fast as the checks that the default sort's order is the stable one)
+QUICK_SORT_FROM = 512
+
+
+def descending_order(values: np.ndarray) -> np.ndarray:
+    """The positions of ``values``, largest first, ties in the order of their positions and NaN last: exactly
+    ``np.argsort(-values, kind="stable")``.  Finite values no two of which are equal have one order whatever sorts
+    them, so numpy's default sort (introsort, about a quarter of the stable sort's time on 2,070 modification indices)
+    gives it; with a tie (0.0 and -0.0 among them), NaN or an infinity, the stable sort."""
+    negative = -values
+    if len(negative) >= QUICK_SORT_FROM and np.isfinite(negative).all():
+        order = np.argsort(negative)
+        ranked = negative[order]
+        if (ranked[1:] != ranked[:-1]).all():  # no two equal: the one order
+            return order
+    return np.argsort(negative, kind="stable")
+
+
 def largest_first(values: np.ndarray, top: int) -> np.ndarray:
     """The positions of the ``top`` largest of ``values``, largest first, ties in the order of their positions and NaN
     last: ``np.argsort(-values, kind="stable")[:top]``, without sorting all the rows (a partial sort finds the
     ``top``-th largest; only the values at least as large are sorted)."""
     negative = -values
     if len(negative) <= 4 * top:
-        return np.argsort(negative, kind="stable")[:top]
+        return descending_order(values)[:top]
     limit = np.partition(negative, top - 1)[top - 1]  # the top-th smallest of -values (NaN last, as in the sort)
     if np.isnan(limit):  # fewer than ``top`` numbers: the sort's order of the NaN
         return np.argsort(negative, kind="stable")[:top]

@@ -23,6 +23,7 @@ from itertools import chain
 
 import numpy as np
 
+from cfa_tool.assessment.diagnostics import descending_order
 from cfa_tool.assessment.standardized import Standardization, standardization, standardize_entries
 from cfa_tool.numerics.linalg import ScaledFactor, inverse_quadratic_forms, scaled_inverse
 from cfa_tool.estimation.objective import Objective
@@ -120,7 +121,7 @@ def collected_indices(candidates: list[list[Candidate]], labels: tuple[str | Non
     after group) for which ``keep`` holds, largest index first (ties in the candidates' order)."""
     group = np.repeat(np.arange(len(candidates)), [len(c) for c in candidates])
     kept = np.flatnonzero(keep)
-    order = kept[np.argsort(-index[kept], kind="stable")]
+    order = kept[descending_order(index[kept])]
     return ModificationIndices(tuple(chain.from_iterable(candidates)), tuple(labels), order, group[order], index[order],
                                expected_change[order], standardized[order])
 CHUNK = 256  # candidates whose derivatives are held in memory at once

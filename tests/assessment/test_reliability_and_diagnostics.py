@@ -309,3 +309,28 @@ def test_the_rows_shown_are_those_a_full_sort_puts_first():
         top = int(rng.integers(0, 15))
         expected = np.argsort(-values, kind="stable")[:top]
         assert np.array_equal(largest_first(values, top), expected)
+
+
+def test_descending_order_is_numpys_stable_sort_of_the_negated_values():
+    """The score tests list their rows, and the case diagnostics pick theirs, in numpy's stable order of the negated
+    values (ties by position, NaN last); assessment.diagnostics.descending_order takes numpy's default sort when that
+    order is the only one.  Checked against numpy's stable argsort itself on values with and without ties (whole
+    numbers, rounded values, 0.0 beside -0.0), NaN and infinities, on both sides of QUICK_SORT_FROM."""
+    from cfa_tool.assessment.diagnostics import QUICK_SORT_FROM, descending_order
+
+    rng = np.random.default_rng(20261204)
+    quick = 0
+    for draw in range(600):
+        n = int(rng.integers(0, 3 * QUICK_SORT_FROM) if draw % 3 else rng.integers(QUICK_SORT_FROM - 2, QUICK_SORT_FROM + 2))
+        kind = draw % 5
+        values = (rng.normal(size=n) * 40 if kind < 2 else np.round(rng.normal(size=n), int(rng.integers(1, 4))) if kind == 2
+                  else rng.integers(0, 2000, n).astype(float))
+        if kind == 3 and n:
+            values[rng.integers(0, n)] = rng.choice([np.nan, np.inf, -np.inf])
+        if kind == 4 and n > 1:
+            values[:2] = 0.0, -0.0
+        expected = np.argsort(-values, kind="stable")
+        found = descending_order(values)
+        assert found.dtype == expected.dtype and np.array_equal(found, expected), (draw, n, kind)
+        quick += n >= QUICK_SORT_FROM and len(np.unique(values)) == n and bool(np.isfinite(values).all())
+    assert quick > 50  # the default sort's branch was taken often
