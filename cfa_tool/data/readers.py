@@ -146,21 +146,33 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = replace(loaded, frame=frame, notes=loaded.notes + blank_note, row_names=names)
     if suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _numbers_from_text(loaded, text_columns)
-    mine = None if items is None else {str(x) for x in items}
-    as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
-    frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
-    frame, code_notes = apply_missing_codes(frame, missing_codes, path, mine, filters)  # in the items only
-    frame, labelled = labelled_non_answers(frame, {c: v for c, v in loaded.value_labels.items() if c not in as_written},
-                                           tuple(missing_codes))
-    if frame is not loaded.frame:
-        loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
-    if code_notes:
-        loaded = replace(loaded, notes=loaded.notes + code_notes)
+    loaded = with_no_answers_read(loaded, missing_codes, path, text_columns, items, listed, filters)
     if names_row is not None:
         word = "row" if suffix in EXCEL_SUFFIXES else "line"
         loaded = replace(loaded, names_row_hint=f"; its column names were read from {word} {names_row}, as "
                                                 f"{names_option.given(names_row)} asks: give the {word} that holds the "
                                                 f"model's names, or leave the option out if the first {word} does")
+    return loaded
+
+
+def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], where, text_columns: tuple[str, ...] = (),
+                         items: Collection[str] | None = None, listed: dict[str, frozenset[str]] | None = None,
+                         filters: Collection = ()) -> LoadedData:
+    """The rows read (from a file or a data frame alike) with what says no answer read as missing in the item
+    columns (``items``; None: every column but ``text_columns``): words such as 'Not applicable' or 'refused'
+    (data.non_answers; ``listed``: the words an 'answers' statement codes, answers whatever they say), the
+    ``missing_codes`` and value labels that say no answer.  The one reading of no answers, so that a file and the
+    same table given as a data frame are read alike."""
+    mine = None if items is None else {str(x) for x in items}
+    as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
+    frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
+    frame, code_notes = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
+    frame, labelled = labelled_non_answers(frame, {c: v for c, v in loaded.value_labels.items() if c not in as_written},
+                                           tuple(missing_codes))
+    if frame is not loaded.frame:
+        loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
+    if code_notes:
+        loaded = replace(loaded, notes=loaded.notes + tuple(code_notes))
     return loaded
 
 

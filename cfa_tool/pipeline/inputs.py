@@ -15,14 +15,14 @@ from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.kept_rows import RowNaming, named_by_index_label, row_naming
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
-from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.matching import answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
 from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
-from cfa_tool.data.readers import HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows, read_data
+from cfa_tool.data.readers import (HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows, read_data,
+                                   with_no_answers_read)
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
                                          refuse_shared_clusters)
@@ -129,8 +129,8 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
                               f"data are a data frame, whose columns have their names; leave it out")
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
         frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
-        frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items, filters)  # in the items only
-        return LoadedData(frame, "<data frame>", notes=blank + tuple(notes))
+        return with_no_answers_read(LoadedData(frame, "<data frame>", notes=blank), missing_codes, "<data frame>",
+                                    text_columns, items, listed, filters)  # as a file's cells are read
     if isinstance(data, (str, Path)):
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
