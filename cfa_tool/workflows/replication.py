@@ -57,8 +57,10 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.model.parameters import one_group_only
-from cfa_tool.pipeline.inputs import (_described, data_problems, load_data_for, load_spec, make_options, missing_codes_option,
-                                      odd_values_named, refit_missing_handling, screened)
+from cfa_tool.pipeline.inputs import (_described, data_problems, keep_option, load_data_for, load_spec, make_options,
+                                      missing_codes_option, odd_values_named, refit_missing_handling, rows_kept,
+                                      screened)
+from cfa_tool.data.filters import parse_filter
 from cfa_tool.assessment.fit_indices import chi_square_p
 from cfa_tool.data.answer_words import code_answer_words, coding_json, coding_record
 from cfa_tool.data.matching import check_columns
@@ -476,13 +478,17 @@ SHARED_ROWS = 0.2
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
               sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
-              validation_names_row: int | None = None, **options) -> Replication:
+              validation_names_row: int | None = None, first_data_row: int | None = None,
+              validation_first_data_row: int | None = None, keep: tuple[str, ...] | list[str] = (),
+              **options) -> Replication:
     """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
     their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too);
     ``missing_codes`` apply to both files, as for ``fit``; ``sheet`` to those of the two that are Excel workbooks
     (a calibration workbook with a CSV validation file), an error when neither is one.  The row of column names is
     each file's own: ``names_row`` that of the calibration file, ``validation_names_row`` that of the validation
-    file (a workbook with question texts above the item codes beside a plain CSV file)."""
+    file (a workbook with question texts above the item codes beside a plain CSV file), and so is the row where its
+    data start (``first_data_row``, ``validation_first_data_row``).  ``keep``: row filters ('Finished = True'),
+    applied to each file, as for ``fit``; each file's notes say how many rows they kept."""
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
@@ -492,12 +498,14 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           f"new data ({_one_file_instead()})")
     sheets = sheet_of_each((calibration, validation), sheet)
-    read = [load_data_for(spec, calibration, sheets[0], missing_codes, names_row=names_row),
-            load_data_for(spec, validation, sheets[1], missing_codes, names_row=validation_names_row,
-                          names_option=Option.VALIDATION_NAMES_ROW)]
+    filters = [parse_filter(k) for k in keep_option(keep)]
+    read = [load_data_for(spec, calibration, sheets[0], missing_codes, filters=filters, names_row=names_row,
+                          first_data_row=first_data_row),
+            load_data_for(spec, validation, sheets[1], missing_codes, filters=filters, names_row=validation_names_row,
+                          names_option=Option.VALIDATION_NAMES_ROW, first_data_row=validation_first_data_row)]
     for loaded in read:
         check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source, loaded.column_hint())
-    read, notes = zip(*(_words_coded(spec, loaded, missing_codes) for loaded in read))
+    read, notes = zip(*(_words_coded(spec, *rows_kept(loaded, filters), missing_codes) for loaded in read))
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
     screens = [screened(loaded.frame, spec.observed_names, loaded.source, loaded.non_answers, loaded.cautions) for loaded in read]
@@ -533,30 +541,36 @@ def _left_out(dropped: int, read: int, source: str, missing, ordinal_items) -> t
     return (found,) if found is not None else ()
 
 
-def _words_coded(spec: Spec, loaded, missing_codes=()) -> tuple:
+def _words_coded(spec: Spec, loaded, filter_notes=(), missing_codes=()) -> tuple:
     """The data read with the answer words of the model's 'answers' statements as their codes, as fit reads them
     (``missing_codes``, --missing-codes, are no answer among the words too), and the notes of the reading: the
-    reader's and how the words were coded."""
+    reader's, the row filters' (``filter_notes``) and how the words were coded."""
     frame, coding_notes = code_answer_words(spec, loaded.frame, loaded.source,
                                             missing_codes=missing_codes_option(missing_codes))
-    return (loaded if frame is loaded.frame else replace(loaded, frame=frame)), (*loaded.notes, *coding_notes)
+    return ((loaded if frame is loaded.frame else replace(loaded, frame=frame)),
+            (*loaded.notes, *filter_notes, *coding_notes))
 
 
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1,
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
+               first_data_row: int | None = None, keep: tuple[str, ...] | list[str] = (),
                **options) -> tuple[Replication, Replication]:
     """Random halves A and B (seeded) of the rows analysed (with continuous items and gaps, every row with an
-    answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse."""
+    answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse.
+    ``keep``: row filters ('Finished = True'), applied before the split, as for ``fit``: the halves are drawn from
+    the rows they keep."""
     seed = check.seed(seed)
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
                                                      options if missing is None else {**options, "missing": missing},
                                                      SPLIT_HALF_KEYWORDS)
-    loaded = load_data_for(spec, data, sheet, missing_codes, names_row=names_row)
+    filters = [parse_filter(k) for k in keep_option(keep)]
+    loaded = load_data_for(spec, data, sheet, missing_codes, filters=filters, names_row=names_row,
+                           first_data_row=first_data_row)
     check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source, loaded.column_hint())
-    loaded, notes = _words_coded(spec, loaded, missing_codes)
+    loaded, notes = _words_coded(spec, *rows_kept(loaded, filters), missing_codes)
     frame, source = loaded.frame, loaded.source
     screen = screened(frame, spec.observed_names, source, loaded.non_answers, loaded.cautions)
     with odd_values_named(screen):
