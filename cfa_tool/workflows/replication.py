@@ -505,7 +505,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                           names_option=Option.VALIDATION_NAMES_ROW, first_data_row=validation_first_data_row)]
     for loaded in read:
         check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source, loaded.column_hint())
-    read, notes = zip(*(_words_coded(spec, *rows_kept(loaded, filters), missing_codes) for loaded in read))
+    read, notes = zip(*(_words_coded(spec, *_each_file_kept(loaded, filters), missing_codes) for loaded in read))
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
     screens = [screened(loaded.frame, spec.observed_names, loaded.source, loaded.non_answers, loaded.cautions) for loaded in read]
@@ -539,6 +539,12 @@ def _left_out(dropped: int, read: int, source: str, missing, ordinal_items) -> t
         return ()
     found = listwise_problem(dropped, read, f" of {source}", PAIRWISE_INSTEAD if ordinal_items else FULL_INFORMATION_INSTEAD)
     return (found,) if found is not None else ()
+
+
+def _each_file_kept(loaded, filters) -> tuple:
+    """One file of two with the rows the row filters keep, and the filters' notes naming the file."""
+    loaded, notes = rows_kept(loaded, filters)
+    return loaded, [f"{loaded.source}: {note}" for note in notes]
 
 
 def _words_coded(spec: Spec, loaded, filter_notes=(), missing_codes=()) -> tuple:
@@ -577,7 +583,8 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
         pair, halves = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)
     split = pair[0].calibration_result.n_obs + pair[0].loose.n_obs
     rows = SplitRows(split, len(frame), split < len(frame.dropna(subset=list(spec.observed_names), how="all")),
-                     *halves)
+                     *halves, filters=loaded.row_filters,
+                     rows_in_file=len(loaded.read_frame) if loaded.read_frame is not None else None)
     # the rows left out before the split (the halves hold complete rows only): fit's caution, after the data's
     problems = data_problems(screen, spec) + _left_out(len(frame) - split, len(frame), source,
                                                        MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
@@ -602,9 +609,26 @@ class SplitRows:
     #: of half B
     half_a: tuple[int, ...] = field(default=(), repr=False)
     half_b: tuple[int, ...] = field(default=(), repr=False)
+    #: the row filters (data.filters.RowFilter) that chose the ``in_file`` rows before the split, and the rows the file
+    #: held before them (None without filters)
+    filters: tuple = ()
+    rows_in_file: int | None = None
 
     def to_dict(self) -> dict:
-        return {"rows_split": self.split, "rows_in_file": self.in_file, "complete_rows_only": self.complete_only}
+        out = {"rows_split": self.split, "rows_in_file": self.in_file, "complete_rows_only": self.complete_only}
+        if self.filters:
+            out.update(rows_kept_by_filters=self.in_file, rows_in_file=self.rows_in_file,
+                       row_filters=[f.text for f in self.filters])
+        return out
+
+    def kept_words(self) -> str:
+        """' kept by the row filter 'Finished = True' (of the 900 rows in the file)': the rows the filters chose
+        before the split ('' without filters)."""
+        if not self.filters:
+            return ""
+        which = "filter" if len(self.filters) == 1 else "filters"
+        return (f" kept by the row {which} {', '.join(repr(f.text) for f in self.filters)} (of the "
+                f"{self.rows_in_file} rows in the file)")
 
 
 def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal_items, method, missing,
