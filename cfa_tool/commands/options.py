@@ -49,23 +49,21 @@ def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
 
 
 def row_number(text: str) -> int:
-    try:
-        value = int(text)
-    except ValueError:
-        value = 0
-    if value < 1 or not text.strip().isdigit():
-        raise argparse.ArgumentTypeError(f"the row of column names must be a row number (1 or more), not '{text}'")
-    return value
+    return _row_of_file(text, 1, "the row of column names must be a row number (1 or more)")
 
 
 def first_row_of_data(text: str) -> int:
+    return _row_of_file(text, 2, "the first row of data must be a row number (2 or more: the column names are above it)")
+
+
+def _row_of_file(text: str, least: int, what: str) -> int:
+    """A row number of a data file typed as an option's value, at least ``least``; ``what``: the message otherwise."""
     try:
         value = int(text)
     except ValueError:
         value = 0
-    if value < 2 or not text.strip().isdigit():
-        raise argparse.ArgumentTypeError(f"the first row of data must be a row number (2 or more: the column names "
-                                         f"are above it), not '{text}'")
+    if value < least or not text.strip().isdigit():
+        raise argparse.ArgumentTypeError(f"{what}, not '{text}'")
     return value
 
 
