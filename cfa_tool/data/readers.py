@@ -963,7 +963,8 @@ def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, tex
         leads += [(lead, position) for position, lead in word_leads.items()]  # every item column of words agrees
     if len(leads) < 2 or len({lead for lead, _ in leads}) != 1:
         return
-    lead, position = next(((lead, p) for lead, p in leads if p in word_leads), leads[0])  # an item's text, if any
+    # the example: the longest text of a column of answers recorded as words (a question), else of numbers
+    lead, position = max(leads, key=lambda found: (found[1] in word_leads, len(str(frame.iloc[0, found[1]]))))
     numbers = row_numbers(frame)[:lead + 1]
     if items:
         for k in range(lead):
