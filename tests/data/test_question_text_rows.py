@@ -71,7 +71,7 @@ def test_a_row_of_question_texts_is_named_with_the_option_that_skips_it(tmp_path
             cfa_tool.check(MODEL + statement, path)
         message = str(raised.value)
         assert where in message and "row 2 under the column names looks like a further header row" in message
-        assert "first_data_row=3" in message and "'The seats were comfortable.'" in message
+        assert "first_data_row=3" in message and "text such as 'Staff answered my questions.'" in message  # the longest
         assert "add it to the statement" not in message
 
 
