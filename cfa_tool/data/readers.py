@@ -847,24 +847,31 @@ def _first_data_start(first_data_row, names_row: int, last: int, where: str, wor
         raise DataError(f"{where} has {last} {word}s, so {word} {first_data_row} ({option.given(first_data_row)}) "
                         f"cannot be the first {word} of data")
     if first_data_row > names_row + 1 and notes is not None:
-        between = (f"{word} {names_row + 1} was" if first_data_row == names_row + 2 else
-                   f"{word}s {names_row + 1}-{first_data_row - 1} were")
-        notes.append(f"{where}: {between} not read as data (between the column names in {word} {names_row} and "
-                     f"the first {word} of data, {first_data_row}, as {option.given(first_data_row)} asks)")
+        notes.append(_skipped_note(where, word, names_row, names_row + 1, first_data_row, option))
     return first_data_row
+
+
+def _skipped_note(where: str, word: str, names_row: int, skipped: int, first_data_row: int, option: Option) -> str:
+    """The note naming the rows from ``skipped`` to the one before ``first_data_row``, which ``option`` left unread."""
+    between = (f"{word} {skipped} was" if first_data_row == skipped + 1 else
+               f"{word}s {skipped}-{first_data_row - 1} were")
+    return (f"{where}: {between} not read as data (between the column names in {word} {names_row} and the first "
+            f"{word} of data, {first_data_row}, as {option.given(first_data_row)} asks)")
 
 
 def _skip_to_data(text: str, delimiter: str, header_line: int, first_data_row, where: str, names_option: Option,
                   notes: list[str] | None) -> str:
     """``text`` with the lines between the header (on ``header_line``) and ``first_data_row`` left empty, so that
     they are not read and every other line keeps its number; an error when no record starts on that line."""
-    start = _first_data_start(first_data_row, header_line, line_count(text), where, "line", names_option, notes)
+    start = _first_data_start(first_data_row, header_line, line_count(text), where, "line", names_option, None)
     after = [line for line, _ in _records(text, delimiter, delimiters_only=True) if line > header_line]
     if start not in after:
         raise DataError(f"{where}: line {start} ({first_data_option(names_option).given(start)}) starts no row of "
                         f"data (it is empty, or inside a quoted field of the line above)")
-    if after[0] == start:
+    if after[0] == start:  # (a header whose quoted names span lines ends on the line above)
         return text
+    if notes is not None:
+        notes.append(_skipped_note(where, "line", header_line, after[0], start, first_data_option(names_option)))
     begin, end = _offset_of_line(text, after[0]), _offset_of_line(text, start)
     return text[:begin] + "\n" * (start - after[0]) + text[end:]
 
