@@ -966,8 +966,11 @@ def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, tex
         if lead == 0 or text_cells[lead:].any() or not present[lead:].any():
             continue  # numbers from the first row on, or text further down: a column of answers or of text
         leads.append((lead, position))
-    if len(word_leads) >= 2 and len(set(word_leads.values())) == 1 and 0 not in word_leads.values():
-        leads += [(lead, position) for position, lead in word_leads.items()]  # every item column of words agrees
+    if len(word_leads) >= 2 and len(set(word_leads.values())) == 1 and 0 not in word_leads.values() and all(
+            v is None or isinstance(v, str) or (isinstance(v, float) and np.isnan(v))
+            for k in range(next(iter(word_leads.values()))) for v in frame.iloc[k].tolist()):
+        # every item column of words agrees, and the rows hold text only (a row of data holds a number or a date)
+        leads += [(lead, position) for position, lead in word_leads.items()]
     if len(leads) < 2 or len({lead for lead, _ in leads}) != 1:
         return
     # the example: the longest text of a column of answers recorded as words (a question), else of numbers

@@ -141,3 +141,17 @@ def test_a_first_row_of_data_that_cannot_apply(tmp_path):
     done = subprocess.run([sys.executable, "-m", "cfa_tool", "check", str(tmp_path / "m.cfa"), "--data", str(book),
                            "--first-data-row", "1"], capture_output=True, text=True)
     assert done.returncode == 2 and "the first row of data must be a row number (2 or more" in done.stderr
+
+
+def test_rare_answers_in_the_first_row_of_data_are_no_header_row(tmp_path):
+    # the first row holds the only 'Depot 7' and 'Intern' of two columns of words, beside numbers: a row of data,
+    # read as such by explore, which looks at every column (no model names the items)
+    frame = _answers().drop(columns="Finished")
+    numbers = pd.DataFrame({x: frame[x].map({w: k + 1 for k, w in enumerate(WORDS)}) for x in ITEMS})
+    numbers.insert(0, "site", np.where(np.arange(N) % 2, "Harbour", "Hill"))
+    numbers.insert(1, "role", np.where(np.arange(N) % 3, "Driver", "Clerk"))
+    numbers.loc[0, ["site", "role"]] = ["Depot 7", "Intern"]
+    path = tmp_path / "riders.csv"
+    numbers.to_csv(path, index=False)
+    loaded = read_data(path)
+    assert len(loaded.frame) == N and loaded.frame.loc[loaded.frame.index[0], "site"] == "Depot 7"
