@@ -15,7 +15,7 @@ def add_parser(sub) -> None:
 def run(args: argparse.Namespace) -> int:
     from cfa_tool.resources import resource_dir
 
-    args.group = args.reference_group = args.sheet = args.names_row = None
+    args.group = args.reference_group = args.sheet = args.names_row = args.first_data_row = None
     args.weights = args.weight_kind = args.cluster = args.strata = None
     args.missing_codes, args.keep = (), []
     args.model = str(resource_dir("models") / "rider_three_factors.cfa")

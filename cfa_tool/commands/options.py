@@ -37,6 +37,10 @@ def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
                    help="the row of a sheet (or line of a text file) that holds the column names, when rows above it "
                         "hold other headings such as question texts; those rows are not read (default: the first row "
                         "with values)")
+    p.add_argument("--first-data-row", metavar="N", type=first_row_of_data, default=None,
+                   help="the row of a sheet (or line of a text file) where the answers start, when rows between it and "
+                        "the column names hold other headings such as question texts; those rows are not read "
+                        "(default: the row under the column names)")
     p.add_argument("--missing-codes", metavar="LIST", type=_codes, default=(),
                    help="comma-separated values that mean 'no answer', e.g. -99,999")
     if filters:
@@ -45,12 +49,21 @@ def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
 
 
 def row_number(text: str) -> int:
+    return _row_of_file(text, 1, "the row of column names must be a row number (1 or more)")
+
+
+def first_row_of_data(text: str) -> int:
+    return _row_of_file(text, 2, "the first row of data must be a row number (2 or more: the column names are above it)")
+
+
+def _row_of_file(text: str, least: int, what: str) -> int:
+    """A row number of a data file typed as an option's value, at least ``least``; ``what``: the message otherwise."""
     try:
         value = int(text)
     except ValueError:
         value = 0
-    if value < 1 or not text.strip().isdigit():
-        raise argparse.ArgumentTypeError(f"the row of column names must be a row number (1 or more), not '{text}'")
+    if value < least or not text.strip().isdigit():
+        raise argparse.ArgumentTypeError(f"{what}, not '{text}'")
     return value
 
 

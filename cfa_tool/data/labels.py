@@ -26,12 +26,20 @@ def label_text(value) -> str:
     return unicodedata.normalize("NFC", str(value).strip())
 
 
-def merged_labels(values) -> list[tuple[str, list[str]]]:
-    """Labels that several different raw texts were read as (for a note): [(label, raw texts)]."""
-    raw: dict[str, set[str]] = {}
+def merged_labels(values) -> list[tuple[str, list[tuple[str, int]]]]:
+    """Labels read from cells written otherwise (for a note): several different raw texts read as one label
+    ('north' and 'north '), or text cells with spaces at their ends or in another Unicode form read without them
+    ('manager ' as 'manager'), each raw text with its number of cells: [(label, [(raw text, cells), ...])]."""
+    from collections import Counter
+
+    raw: dict[str, Counter] = {}
+    trimmed = set()
     for v in values:
-        raw.setdefault(label_text(v), set()).add(str(v))
-    return [(label, sorted(texts)) for label, texts in raw.items() if len(texts) > 1]
+        label = label_text(v)
+        raw.setdefault(label, Counter())[str(v)] += 1
+        if isinstance(v, str) and v != label:
+            trimmed.add(label)
+    return [(label, sorted(texts.items())) for label, texts in raw.items() if len(texts) > 1 or label in trimmed]
 
 
 def case_variants(values) -> list[list[tuple[str, int]]]:
@@ -71,10 +79,15 @@ def label_notes(frame: pd.DataFrame, column: str, shown: int = 5, part: str = "g
         notes.append(f"in the {part} column '{printable(column)}', numbers written in different ways were read as one "
                      f"{unit}: {_listed(spelled, shown)}"
                      f" (if they are different groups, give them labels that are not plain numbers, such as 'D01')")
-    merged = merged_labels(values)
+    found = merged_labels(values)
+    merged = [(label, texts) for label, texts in found if len(texts) > 1]
     if merged:
         notes.append(f"in the {part} column '{printable(column)}', labels that differ only by spaces at their ends or "
                      f"by Unicode form were read as one {unit}: {_listed(merged, shown)}")
+    alone = [(label, texts) for label, texts in found if len(texts) == 1]
+    if alone:
+        notes.append(f"in the {part} column '{printable(column)}', labels written with spaces at their ends or in "
+                     f"another Unicode form were read without them: {_listed(alone, shown)}")
     from cfa_tool.data.readers import MARKED
 
     marked = frame.attrs.get(MARKED, {}).get(column)
@@ -122,8 +135,15 @@ def spelled_labels(frame: pd.DataFrame, column: str, values) -> list[tuple[str, 
     return [(label_text(float(value)), list(texts)) for value, texts in sorted(spellings.items()) if value in present]
 
 
-def _listed(merged: list[tuple[str, list[str]]], shown: int) -> str:
-    listed = "; ".join(f"{' and '.join(repr(printable(t)) for t in texts)} as '{printable(label)}'"
+def _listed(merged: list[tuple[str, list]], shown: int) -> str:
+    """"'north' (120 rows) and 'north ' (30 rows) as 'north'; ...": each label's raw texts, with their rows when
+    counted ((text, rows) pairs, :func:`merged_labels`)."""
+    def written(text) -> str:
+        if isinstance(text, tuple):
+            return f"{printable(text[0])!r} ({text[1]} row{'s' if text[1] != 1 else ''})"
+        return repr(printable(text))
+
+    listed = "; ".join(f"{' and '.join(written(t) for t in texts)} as '{printable(label)}'"
                        for label, texts in merged[:shown])
     return listed + (f"; and {len(merged) - shown} more" if len(merged) > shown else "")
 

@@ -93,7 +93,8 @@ STATA_SUFFIXES = (".dta",)
 def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               text_columns: tuple[str, ...] = (), items: Collection[str] | None = None,
               listed: dict[str, frozenset[str]] | None = None, filters: Collection = (),
-              names_row: int | None = None, names_option: Option = Option.NAMES_ROW) -> LoadedData:
+              names_row: int | None = None, names_option: Option = Option.NAMES_ROW,
+              first_data_row: int | None = None) -> LoadedData:
     """Any supported file -> LoadedData; ``missing_codes`` are values that mean 'no answer'; ``text_columns``
     (an id column) are read from delimited text as written ('007' stays '007').  ``items``: the model's item
     columns, the only ones whose text cells and value labels that say no answer ('Not applicable', 9 'refused') are
@@ -103,7 +104,9 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     caller applies next (data.filters.RowFilter), which the notes do not suggest again.  ``names_row``: the row (of a
     sheet) or line (of a text file) that holds the column names, the rows above it not read (a survey platform's
     question texts above the item codes), given by ``names_option`` (the option every message about the row of names
-    names: replicate's validation file has its own).  The frame's index numbers its rows as the file does (a sheet's rows, a
+    names: replicate's validation file has its own).  ``first_data_row``: the row (or line) where the rows of data
+    start, the rows between it and the column names not read (question texts under the item codes), given by
+    :func:`first_data_option` of ``names_option``.  The frame's index numbers its rows as the file does (a sheet's rows, a
     text file's lines: data.moments.file_rows_index); rows with no value in any column are left out with a note."""
     path = Path(path)
     suffix = path.suffix.lower()
@@ -116,12 +119,16 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     if names_row is not None and suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         raise DataError(f"'{path}' is an {'SPSS' if suffix in SPSS_SUFFIXES else 'Stata'} file, whose variables have "
                         f"their names, so a row of column names ({names_option}) cannot apply")
+    if first_data_row is not None and suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
+        raise DataError(f"'{path}' is an {'SPSS' if suffix in SPSS_SUFFIXES else 'Stata'} file, whose rows are all "
+                        f"rows of data, so a first row of data ({first_data_option(names_option)}) cannot apply")
     if suffix in EXCEL_SUFFIXES:
         notes: list[str] = []
         names: list[pd.Series] = []
         sheets: list[str] = []
         hidden: list = []
-        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, items, names_row, names_option), str(path),
+        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, items, names_row, names_option,
+                                        listed, first_data_row), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None, cautions=tuple(hidden),
                             sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else ())
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
@@ -132,7 +139,8 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         notes = []
         names = []
         reading: list[TextReading] = []
-        loaded = LoadedData(read_table(path, notes, names, text_columns, items, names_row, reading, names_option), str(path),
+        loaded = LoadedData(read_table(path, notes, names, text_columns, items, names_row, reading, names_option,
+                                       listed, first_data_row), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None,
                             reading=reading[0] if reading else None)
         if loaded.reading is not None and not loaded.reading.plain():  # said when it is not plain UTF-8 with commas
@@ -146,21 +154,33 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         loaded = replace(loaded, frame=frame, notes=loaded.notes + blank_note, row_names=names)
     if suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
         loaded = _numbers_from_text(loaded, text_columns)
-    mine = None if items is None else {str(x) for x in items}
-    as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
-    frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
-    frame, code_notes = apply_missing_codes(frame, missing_codes, path, mine, filters)  # in the items only
-    frame, labelled = labelled_non_answers(frame, {c: v for c, v in loaded.value_labels.items() if c not in as_written},
-                                           tuple(missing_codes))
-    if frame is not loaded.frame:
-        loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
-    if code_notes:
-        loaded = replace(loaded, notes=loaded.notes + code_notes)
+    loaded = with_no_answers_read(loaded, missing_codes, path, text_columns, items, listed, filters)
     if names_row is not None:
         word = "row" if suffix in EXCEL_SUFFIXES else "line"
         loaded = replace(loaded, names_row_hint=f"; its column names were read from {word} {names_row}, as "
                                                 f"{names_option.given(names_row)} asks: give the {word} that holds the "
                                                 f"model's names, or leave the option out if the first {word} does")
+    return loaded
+
+
+def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], where, text_columns: tuple[str, ...] = (),
+                         items: Collection[str] | None = None, listed: dict[str, frozenset[str]] | None = None,
+                         filters: Collection = ()) -> LoadedData:
+    """The rows read (from a file or a data frame alike) with what says no answer read as missing in the item
+    columns (``items``; None: every column but ``text_columns``): words such as 'Not applicable' or 'refused'
+    (data.non_answers; ``listed``: the words an 'answers' statement codes, answers whatever they say), the
+    ``missing_codes`` and value labels that say no answer.  The one reading of no answers, so that a file and the
+    same table given as a data frame are read alike."""
+    mine = None if items is None else {str(x) for x in items}
+    as_written = tuple(text_columns) if mine is None else tuple(c for c in loaded.frame.columns if str(c) not in mine)
+    frame, written = written_non_answers(loaded.frame, as_written, listed)  # before the codes: 'refused' made a column text
+    frame, code_notes = apply_missing_codes(frame, missing_codes, where, mine, filters)  # in the items only
+    frame, labelled = labelled_non_answers(frame, {c: v for c, v in loaded.value_labels.items() if c not in as_written},
+                                           tuple(missing_codes))
+    if frame is not loaded.frame:
+        loaded = replace(loaded, frame=frame, non_answers=loaded.non_answers + written + labelled)
+    if code_notes:
+        loaded = replace(loaded, notes=loaded.notes + tuple(code_notes))
     return loaded
 
 
@@ -281,7 +301,8 @@ def _composed_names(loaded: LoadedData) -> LoadedData:
 
 def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list | None = None,
                 sheets_out: list | None = None, hidden_out: list | None = None, items=None,
-                names_row: int | None = None, names_option: Option = Option.NAMES_ROW) -> pd.DataFrame:
+                names_row: int | None = None, names_option: Option = Option.NAMES_ROW, listed=None,
+                first_data_row: int | None = None) -> pd.DataFrame:
     try:
         import openpyxl
         from openpyxl.utils import get_column_letter
@@ -328,6 +349,10 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
                      f"which were read from row {first + 2}")
         first += 1
         rows = rows[1:]
+    data_start = first + 2  # the sheet's row of the first row of data
+    if first_data_row is not None:
+        data_start = _first_data_start(first_data_row, first + 1, len(rows) + first, where, "row", names_option, notes)
+        rows = rows[:1] + rows[data_start - first - 1:]
     merged = [str(rng) for rng in ws.merged_cells.ranges if rng.min_row == first + 1]
     if merged:
         raise DataError(f"{where}: the header row has merged cells ({merged[0]}); "
@@ -346,16 +371,16 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
             raise DataError(f"{path} (sheet '{ws.title}'): column {position} of the header row{named_by} has no name")
     _check_duplicates(header, f"{path} (sheet '{ws.title}')", named_by)
     width = len(header)
-    for number, r in enumerate(rows[1:], start=first + 2):
+    for number, r in enumerate(rows[1:], start=data_start):
         beyond = [k for k, v in enumerate(r[width:], start=width + 1 + skipped) if v not in (None, "")]
         if beyond:
             raise DataError(f"{path} (sheet '{ws.title}'): row {number} has a value in column {beyond[0]}, which has "
                             f"no name in the header row ({_header_taken(f'row {first + 1}', names_option)})")
-    _check_merged_answers(ws, where, header, first + 2, skipped)
-    filled = [k for k, r in enumerate(rows[1:], start=first + 2) if any(v is not None for v in r[:width])]
+    _check_merged_answers(ws, where, header, data_start, skipped)
+    filled = [k for k, r in enumerate(rows[1:], start=data_start) if any(v is not None for v in r[:width])]
     # every row up to the last one with a value, empty ones too: they are left out, and named, by drop_blank_rows
-    kept = list(range(first + 2, filled[-1] + 1)) if filled else []
-    body = [list(rows[k - first - 1][:width]) for k in kept]
+    kept = list(range(data_start, filled[-1] + 1)) if filled else []
+    body = [list(rows[k - data_start + 1][:width]) for k in kept]
     hidden_rows = {k for k, dimension in ws.row_dimensions.items() if dimension.hidden}
     if hidden_rows and hidden_out is not None:  # a filter, or rows hidden by hand: the file holds them all the same
         sheet_rows = tuple(k for k in filled if k in hidden_rows)
@@ -373,12 +398,13 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
                 r[k] = None
     _say_markers(_marker_totals(marked.values()), where, notes)
     if any(v is None for r in body for v in r):
-        _check_uncomputed_formulas(path, ws.title, first)
+        _check_uncomputed_formulas(path, ws.title, data_start - 2)
     frame = pd.DataFrame(body, columns=header, index=file_rows_index(kept))
     frame.attrs[SHEET_COLUMNS] = {name: get_column_letter(skipped + k + 1) for k, name in enumerate(header) if name}
     if marked:
         frame.attrs[MARKED] = {header[k]: counted for k, counted in marked.items()}
-    _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option)
+    _check_header_rows(frame, where, False, items=items, header_row=first + 1, names_option=names_option,
+                       listed=listed)
     if row_names:
         frame = _split_row_names(frame, names_out)
         notes.append(f"{path} (sheet '{ws.title}'): the first column has no name in the header and was read as row "
@@ -696,13 +722,15 @@ def _shown_delimiter(d: str) -> str:
 
 def read_table(path: str | Path, notes: list[str] | None = None, row_names: list | None = None,
                text_columns: tuple[str, ...] = (), items=None, names_row: int | None = None,
-               reading: list | None = None, names_option: Option = Option.NAMES_ROW) -> pd.DataFrame:
+               reading: list | None = None, names_option: Option = Option.NAMES_ROW, listed=None,
+               first_data_row: int | None = None) -> pd.DataFrame:
     """A delimited text file as a DataFrame, its rows indexed by their lines (data.moments.file_rows_index).
     ``notes`` receives what was done to read it that the report should mention (empty fields dropped at the ends
     of rows, a row-name column); ``row_names`` receives the row-name column's values (a Series of text) when the
     file has one; ``names_row``: the line of the column names (the lines above it are not read), given by
     ``names_option``; ``reading``
-    receives how the text was read (:class:`TextReading`)."""
+    receives how the text was read (:class:`TextReading`); ``first_data_row``: the line where the rows of data start,
+    the lines between it and the column names not read."""
     path = Path(path)
     raw = input_bytes(path, "data file", DataError, MAX_TEXT_BYTES)
     if not raw.strip():
@@ -723,6 +751,8 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         if notes is not None:
             notes.append(_names_row_note(str(path), start, "line", names_option))
     header_line, header = first
+    if first_data_row is not None:
+        text = _skip_to_data(text, delimiter, header_line, first_data_row, str(path), names_option, notes)
     header = [h.strip() for h in header]
     trailing = 0
     while len(header) > 1 and not header[-1]:  # a delimiter at the end of the header line
@@ -767,7 +797,7 @@ def read_table(path: str | Path, notes: list[str] | None = None, row_names: list
         frame.index = file_rows_index(lines)
     frame = blank_text_as_missing(frame, text_columns, MISSING_MARKERS, decimal == ",")  # 'NA ' is 'NA'
     raw = _RawCells(body, delimiter, widest, len(header), frame.index)
-    _check_header_rows(frame, str(path), decimal == ",", text_columns, items, header_line, names_option)
+    _check_header_rows(frame, str(path), decimal == ",", text_columns, items, header_line, names_option, listed)
     if decimal == ",":
         _check_dotted_thousands(frame, raw, header, path, notes)
         _check_decimal_points(frame, str(path), text_columns)
@@ -798,6 +828,52 @@ def _names_row_start(names_row, rows: int, first: int, where: str, word: str,
         raise DataError(f"{where}: {word} {names_row} ({option}) is empty; the first {word} with values is "
                         f"{first + 1}")
     return int(names_row) - 1
+
+
+def _first_data_start(first_data_row, names_row: int, last: int, where: str, word: str, names_option: Option,
+                      notes: list[str] | None) -> int:
+    """The row (of a sheet; ``word``: 'row') or line (of a text file) where the rows of data start, as
+    :func:`first_data_option` of ``names_option`` names it (``names_row``: the row of the column names; ``last``: the
+    file's last row), or an error when it cannot apply; the rows between the two are named in one note."""
+    option = first_data_option(names_option)
+    if isinstance(first_data_row, bool) or not isinstance(first_data_row, (int, np.integer)) or first_data_row < 1:
+        raise DataError(f"the first row of data ({option}) must be a {word} number (1 or more), not "
+                        f"{printable(repr(first_data_row))[:40]}")
+    first_data_row = int(first_data_row)
+    if first_data_row <= names_row:
+        raise DataError(f"{where}: {word} {first_data_row} ({option.given(first_data_row)}) is not below the column "
+                        f"names, which are in {word} {names_row}; give the {word} where the answers start")
+    if first_data_row > last:
+        raise DataError(f"{where} has {last} {word}s, so {word} {first_data_row} ({option.given(first_data_row)}) "
+                        f"cannot be the first {word} of data")
+    if first_data_row > names_row + 1 and notes is not None:
+        notes.append(_skipped_note(where, word, names_row, names_row + 1, first_data_row, option))
+    return first_data_row
+
+
+def _skipped_note(where: str, word: str, names_row: int, skipped: int, first_data_row: int, option: Option) -> str:
+    """The note naming the rows from ``skipped`` to the one before ``first_data_row``, which ``option`` left unread."""
+    between = (f"{word} {skipped} was" if first_data_row == skipped + 1 else
+               f"{word}s {skipped}-{first_data_row - 1} were")
+    return (f"{where}: {between} not read as data (between the column names in {word} {names_row} and the first "
+            f"{word} of data, {first_data_row}, as {option.given(first_data_row)} asks)")
+
+
+def _skip_to_data(text: str, delimiter: str, header_line: int, first_data_row, where: str, names_option: Option,
+                  notes: list[str] | None) -> str:
+    """``text`` with the lines between the header (on ``header_line``) and ``first_data_row`` left empty, so that
+    they are not read and every other line keeps its number; an error when no record starts on that line."""
+    start = _first_data_start(first_data_row, header_line, line_count(text), where, "line", names_option, None)
+    after = [line for line, _ in _records(text, delimiter, delimiters_only=True) if line > header_line]
+    if start not in after:
+        raise DataError(f"{where}: line {start} ({first_data_option(names_option).given(start)}) starts no row of "
+                        f"data (it is empty, or inside a quoted field of the line above)")
+    if after[0] == start:  # (a header whose quoted names span lines ends on the line above)
+        return text
+    if notes is not None:
+        notes.append(_skipped_note(where, "line", header_line, after[0], start, first_data_option(names_option)))
+    begin, end = _offset_of_line(text, after[0]), _offset_of_line(text, start)
+    return text[:begin] + "\n" * (start - after[0]) + text[end:]
 
 
 def _names_row_note(where: str, names_row: int, word: str, option: Option = Option.NAMES_ROW) -> str:
@@ -841,44 +917,66 @@ def _as_numbers(column: pd.Series, decimal_comma: bool) -> pd.Series:
 
 
 MAX_HEADER_ROWS = 3  # further header rows a survey platform writes under the column names (question texts, ids)
+MAX_ANSWER_WORDS = 30  # a column of answers recorded as words holds at most this many different words
 
 
 def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, text_columns=(), items=None,
-                       header_row: int | None = None, names_option: Option = Option.NAMES_ROW) -> None:
-    """Rows right under the header that hold text in every column holding numbers below them: survey platforms
-    export the question texts and import ids as a second and third header row.  Read as answers they make every
-    item column text; the remedy is to delete them, not to recode the answers.  When one of them holds the model's
+                       header_row: int | None = None, names_option: Option = Option.NAMES_ROW,
+                       listed: dict[str, frozenset[str]] | None = None) -> None:
+    """Rows right under the header that hold text in every column of answers: survey platforms export the question
+    texts and import ids as a second and third header row.  A column of answers is one of numbers (text above its
+    numbers) or, among the item columns (``items``; None: every column), one of answers recorded as words (a cell
+    that is not one of the column's answers above them: not a word its 'answers' statement codes, ``listed``, nor
+    one that says no answer; without a statement, a cell unlike every other cell of a column of a few repeated
+    words).  Read as answers such rows make every item column text or an unknown answer word; the remedy is to skip
+    them (:func:`first_data_option`) or delete them, not to recode the answers.  When one of them holds the model's
     names (``items``: question texts in the header row, item codes under them), the message says so: the names
-    are to be read from that row, not deleted."""
+    are to be read from that row, not skipped."""
     if len(frame) <= MAX_HEADER_ROWS + 1:
         return
 
     def text(v) -> bool:
         return isinstance(v, str) and v.strip() != "" and number(v, decimal_comma) is None
 
+    wanted = None if items is None else {str(x) for x in items}
     top, below = frame.iloc[0].tolist(), frame.iloc[MAX_HEADER_ROWS].tolist()
-    if sum(text(a) and not text(b) for a, b in zip(top, below)) < 2:  # the common case, at the cost of two rows
+    numbers_below = sum(text(a) and not text(b) for a, b in zip(top, below))
+    words_below = sum(text(a) and text(b) and a.strip() != b.strip() and (wanted is None or str(name) in wanted)
+                      for a, b, name in zip(top, below, frame.columns))
+    if numbers_below < 2 and words_below < 2:  # the common case, at the cost of two rows
         return
     leads = []
+    word_leads = {}  # the item columns of words: position -> its header-like rows (0 when none)
     for position in range(frame.shape[1]):
         column = frame.iloc[:, position]
-        if not _text_dtype(column) or frame.columns[position] in text_columns:
+        name = frame.columns[position]
+        if not _text_dtype(column) or name in text_columns:
             continue
         numbers = _as_numbers(column, decimal_comma)
         present = column.notna().to_numpy() & column.map(lambda v: not (isinstance(v, str) and not v.strip())).to_numpy()
-        text = present & numbers.isna().to_numpy()
+        text_cells = present & numbers.isna().to_numpy()
+        if text_cells[MAX_HEADER_ROWS:].any() and (wanted is None or str(name) in wanted):
+            lead = _words_lead(column, present, (listed or {}).get(str(name)))
+            if lead is not None:
+                word_leads[position] = lead
+            continue
         lead = 0
-        while lead < MAX_HEADER_ROWS and text[lead]:
+        while lead < MAX_HEADER_ROWS and text_cells[lead]:
             lead += 1
-        if lead == 0 or text[lead:].any() or not present[lead:].any():
+        if lead == 0 or text_cells[lead:].any() or not present[lead:].any():
             continue  # numbers from the first row on, or text further down: a column of answers or of text
         leads.append((lead, position))
+    if len(word_leads) >= 2 and len(set(word_leads.values())) == 1 and 0 not in word_leads.values() and all(
+            v is None or isinstance(v, str) or (isinstance(v, float) and np.isnan(v))
+            for k in range(next(iter(word_leads.values()))) for v in frame.iloc[k].tolist()):
+        # every item column of words agrees, and the rows hold text only (a row of data holds a number or a date)
+        leads += [(lead, position) for position, lead in word_leads.items()]
     if len(leads) < 2 or len({lead for lead, _ in leads}) != 1:
         return
-    lead, position = leads[0]
-    numbers = row_numbers(frame)[:lead]
+    # the example: the longest text of a column of answers recorded as words (a question), else of numbers
+    lead, position = max(leads, key=lambda found: (found[1] in word_leads, len(str(frame.iloc[0, found[1]]))))
+    numbers = row_numbers(frame)[:lead + 1]
     if items:
-        wanted = {str(x) for x in items}
         for k in range(lead):
             cells = [str(v).strip() for v in frame.iloc[k].tolist() if isinstance(v, str)]
             hits = [c for c in cells if c in wanted]
@@ -890,12 +988,50 @@ def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, tex
                                 f"column names from that row with {names_option.given(numbers[k])} (the rows above it are then "
                                 f"not read)")
     example = printable(str(frame.iloc[0, position]).strip())[:60]
-    rows = f"row {numbers[0]}" if lead == 1 else f"rows {numbers[0]}-{numbers[-1]}"
+    rows = f"row {numbers[0]}" if lead == 1 else f"rows {numbers[0]}-{numbers[lead - 1]}"
     look = "looks like a further header row" if lead == 1 else "look like further header rows"
+    held = "answers" if position in word_leads else "numbers"
     raise DataError(f"{where}: {rows} under the column names {look} (text such as '{example}' in every column "
-                    f"that holds numbers below {'it' if lead == 1 else 'them'}), as survey platforms export question "
-                    f"texts and import ids; delete {'it' if lead == 1 else 'them'}, keeping the one row of column "
-                    f"names, in a copy of the file")
+                    f"that holds {held} below {'it' if lead == 1 else 'them'}), as survey platforms export question "
+                    f"texts and import ids; skip {'it' if lead == 1 else 'them'} with "
+                    f"{first_data_option(names_option).given(numbers[lead])}, the row where the answers start, or "
+                    f"delete {'it' if lead == 1 else 'them'} in a copy of the file")
+
+
+def _words_lead(column: pd.Series, present: np.ndarray, words: frozenset[str] | None) -> int | None:
+    """How many of the first rows (up to MAX_HEADER_ROWS) of a column of answers recorded as words hold text that is
+    not one of its answers: not one of the ``words`` its 'answers' statement codes (matching keys) nor a word that
+    says no answer, or, without a statement, a cell unlike every other cell of the column; None when the column is
+    no column of answers (without a statement: more than MAX_ANSWER_WORDS different cells below those rows, or
+    cells that repeat too little, such as comments or ids)."""
+    from cfa_tool.data.non_answers import says_no_answer
+    from cfa_tool.language.spec import answer_key
+
+    cells = [v.strip() if isinstance(v, str) else v for v in column.tolist()]
+    if words:
+        def answer(v) -> bool:
+            return answer_key(v) in words or says_no_answer(v)
+    else:
+        rest = [v for v, p in zip(cells[MAX_HEADER_ROWS:], present[MAX_HEADER_ROWS:]) if p]
+        seen = set(rest)
+        if len(seen) > MAX_ANSWER_WORDS or len(rest) < 2 * len(seen):
+            return None
+        counts: dict = {}
+        for v in cells:
+            counts[v] = counts.get(v, 0) + 1
+
+        def answer(v) -> bool:
+            return counts[v] > 1 or says_no_answer(v)
+    lead = 0
+    while lead < MAX_HEADER_ROWS and present[lead] and isinstance(cells[lead], str) and not answer(cells[lead]):
+        lead += 1
+    return lead
+
+
+def first_data_option(names_option: Option) -> Option:
+    """The option that names the first row of data of the file whose row of column names ``names_option`` names:
+    --first-data-row beside --names-row, --validation-first-data-row beside --validation-names-row."""
+    return Option.VALIDATION_FIRST_DATA_ROW if names_option is Option.VALIDATION_NAMES_ROW else Option.FIRST_DATA_ROW
 
 
 _COMMA_NUMBER = re.compile(r"[+-]?\d+,\d+")

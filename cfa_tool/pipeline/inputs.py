@@ -15,14 +15,14 @@ from cfa_tool.data.answer_words import code_answer_words, coding_record, refuse_
 from cfa_tool.data.groups import split_moments
 from cfa_tool.data.kept_rows import RowNaming, named_by_index_label, row_naming
 from cfa_tool.data.labels import CODED_LABELS, label_notes, label_text, labelled_codes
-from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.matching import answer_range_notes, check_codes_off_scales, check_columns, check_declared_ranges
 from cfa_tool.data.moments import ItemColumns, SampleMoments, item_values, missing_summary, row_numbers, sample_moments
 from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
 from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
-from cfa_tool.data.readers import HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows, read_data
+from cfa_tool.data.readers import (HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows,
+                                   first_data_option, read_data, with_no_answers_read)
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
                                          refuse_shared_clusters)
@@ -68,13 +68,15 @@ def load_spec(model: str | os.PathLike | Spec) -> Spec:
 
 
 def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), keep=(), group: str | None = None,
-                       id_column: str | None = None, names_row: int | None = None) -> None:
+                       id_column: str | None = None, names_row: int | None = None,
+                       first_data_row: int | None = None) -> None:
     """Options about rows and columns of raw data cannot apply to summary statistics: each is an
     error rather than silently ignored."""
     given = [f"{name} ({option})" for name, option, value in (
         ("a sheet", Option.SHEET, sheet), ("missing-value codes", Option.MISSING_CODES, missing_codes),
         ("row filters", Option.KEEP, keep), ("groups", Option.GROUP_COLUMN, group),
-        ("an id column", Option.ID_COLUMN, id_column), ("a row of column names", Option.NAMES_ROW, names_row))
+        ("an id column", Option.ID_COLUMN, id_column), ("a row of column names", Option.NAMES_ROW, names_row),
+        ("a first row of data", Option.FIRST_DATA_ROW, first_data_row))
         if value]
     if given:
         raise OptionError(f"{source} holds summary statistics, not rows of data, so {given[0]} cannot apply; "
@@ -115,10 +117,11 @@ def of_summary_statistics(result, moments, notes) -> object:
 
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               text_columns: tuple[str, ...] = (), items=None, listed=None, filters=(),
-              names_row: int | None = None, names_option: Option = Option.NAMES_ROW) -> LoadedData:
+              names_row: int | None = None, names_option: Option = Option.NAMES_ROW,
+              first_data_row: int | None = None) -> LoadedData:
     """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to;
     ``filters``: the row filters applied next, which the notes do not suggest again; ``names_option``: the option
-    that gave ``names_row``)."""
+    that gave ``names_row``, and whose first row of data is ``first_data_row``)."""
     missing_codes = missing_codes_option(missing_codes)
     if isinstance(data, pd.DataFrame):
         if sheet is not None:
@@ -127,16 +130,20 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         if names_row is not None:
             raise OptionError(f"a row of column names ({names_option}) is read from a file, and the "
                               f"data are a data frame, whose columns have their names; leave it out")
+        if first_data_row is not None:
+            raise OptionError(f"a first row of data ({first_data_option(names_option)}) is read from a file, and the "
+                              f"data are a data frame, whose rows are all data; leave it out")
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
         frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
-        frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items, filters)  # in the items only
-        return LoadedData(frame, "<data frame>", notes=blank + tuple(notes))
+        return with_no_answers_read(LoadedData(frame, "<data frame>", notes=blank), missing_codes, "<data frame>",
+                                    text_columns, items, listed, filters)  # as a file's cells are read
     if isinstance(data, (str, Path)):
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items,
-                         listed=listed, filters=filters, names_row=names_row, names_option=names_option)
+                         listed=listed, filters=filters, names_row=names_row, names_option=names_option,
+                         first_data_row=first_data_row)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -160,27 +167,30 @@ def keep_option(keep) -> list[str]:
 
 def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: tuple[str, ...] = (),
                   items=None, filters=(), names_row: int | None = None,
-                  names_option: Option = Option.NAMES_ROW) -> LoadedData:
+                  names_option: Option = Option.NAMES_ROW, first_data_row: int | None = None) -> LoadedData:
     """The data read for the model ``spec``, as every command reads them: a missing-value code on a declared scale
     refused, no-answer words and labels read as missing in ``items`` only (None: the model's items), and the words
     its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next."""
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
     listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
     return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed,
-                     filters, names_row, names_option)
+                     filters, names_row, names_option, first_data_row)
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
                            text_columns: tuple[str, ...] = (), items=None,
-                           names_row: int | None = None, names_option: Option = Option.NAMES_ROW
+                           names_row: int | None = None, names_option: Option = Option.NAMES_ROW,
+                           first_data_row: int | None = None, name_the_file: bool = False
                            ) -> tuple[Spec, LoadedData, list[str]]:
     """The model and the data read for it, as every command that reads rows reads each of its files; no-answer
     words and labels are read as missing in ``items`` only (None: the model's items), never in a group, id or design
-    column; ``names_option``: the option that gave ``names_row`` (replicate's validation file has its own)."""
+    column; ``names_option``: the option that gave ``names_row`` (replicate's validation file has its own);
+    ``name_the_file``: the row filters' notes name the file (one of several files filtered alike)."""
     keep = keep_option(keep)
     spec = load_spec(model)
     filters = [parse_filter(k) for k in keep]
-    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row, names_option)
+    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row, names_option,
+                           first_data_row)
     frame = loaded.frame
     pasted_matrix(frame, loaded.row_names, spec.observed_names, loaded.source)
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
@@ -191,11 +201,9 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     if not all(type(c) is str for c in labels):  # column labels as text (a renamed copy only when needed)
         frame = frame.set_axis(columns, axis=1)
     notes: list[str] = list(loaded.notes)
-    cautions = loaded.cautions
-    if filters:
-        frame, filter_notes, filters = apply_filters(frame, filters, loaded.source, loaded.value_labels)
-        notes += filter_notes
-        cautions = kept_cautions(cautions, frame)
+    loaded, filter_notes = rows_kept(replace(loaded, frame=frame) if frame is not loaded.frame else loaded, filters)
+    frame, cautions, filters = loaded.frame, loaded.cautions, loaded.row_filters
+    notes += [f"{loaded.source}: {note}" for note in filter_notes] if name_the_file else filter_notes
     check_columns(spec, columns, loaded.source, loaded.column_hint())
     frame, coding_notes = code_answer_words(spec, frame, loaded.source,  # 'answers' statements: words as codes
                                             missing_codes=missing_codes_option(missing_codes))
@@ -207,9 +215,19 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         if loaded.value_labels else ()
     frame = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)  # said where used (labels.label_notes)
     items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
-    return spec, replace(loaded, frame=frame, cautions=cautions + beyond, read_frame=loaded.frame if keep else None,
-                         row_filters=tuple(filters), items=items,
+    return spec, replace(loaded, frame=frame, cautions=cautions + beyond, items=items,
                          odd_values=odd_values(frame, spec.observed_names, row_numbers(frame), items.values)), notes
+
+
+def rows_kept(loaded: LoadedData, filters) -> tuple[LoadedData, list[str]]:
+    """``loaded`` with only the rows the row filters (data.filters.RowFilter, parsed) keep, the rows read before them
+    and the filters (with the rows each left out for an empty cell) kept for the reports, and the filters' notes;
+    unchanged without filters."""
+    if not filters:
+        return loaded, []
+    frame, notes, filters = apply_filters(loaded.frame, list(filters), loaded.source, loaded.value_labels)
+    return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame), read_frame=loaded.frame,
+                   row_filters=tuple(filters)), notes
 
 
 def kept_cautions(cautions: tuple, frame: pd.DataFrame) -> tuple:
@@ -281,7 +299,7 @@ def _no_group_notes(no_group: int, group: str) -> list[str]:
 
 def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None, *, group: str | None = None,
         reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
-        missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
+        first_data_row: int | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
         variables: list[str] | None = None, matrix: str = "covariance", sds=None, divisor: str = "n-1",
         ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, id_column: str | None = None,
         weights: str | None = None, cluster: str | None = None, strata: str | None = None,
@@ -291,7 +309,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ``model``: model text, a path to a model file, or a parsed Spec.
     ``data``: a DataFrame or a path to a data file (CSV/TSV, .xlsx, .sav/.por, .dta, or a
     ``.stats`` summary-statistics file); ``sheet`` picks an Excel sheet; ``names_row``: the row (of a sheet) or
-    line (of a text file) that holds the column names, the rows above it not read; ``missing_codes``
+    line (of a text file) that holds the column names, the rows above it not read; ``first_data_row``: the row (or
+    line) where the rows of data start, the rows between it and the column names not read (question texts under
+    the item codes); ``missing_codes``
     are values that mean 'no answer'; ``keep`` are row filters such as 'district = north'.
     Instead of data: ``covariance`` (a matrix, or a DataFrame with variable names), ``n_obs``
     and optionally ``means``, ``variables``, ``matrix='correlation'`` with ``sds``, and
@@ -335,7 +355,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             raise OptionError(f"{given[0]} goes with a covariance matrix (covariance=...), and none is given")
     if covariance is not None or summary_source(data):
         refuse_row_options("a covariance matrix" if covariance is not None else f"'{data}'", sheet, missing_codes, keep, group,
-                           id_column, names_row)
+                           id_column, names_row, first_data_row)
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         if design is not None:
@@ -365,7 +385,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
-                                                 (id_column,) if isinstance(id_column, str) else (), names_row=names_row)
+                                                 (id_column,) if isinstance(id_column, str) else (), names_row=names_row,
+                                                 first_data_row=first_data_row)
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:
@@ -1466,8 +1487,8 @@ def make_options(options: dict, own: tuple[str, ...] = (), helpers: bool = False
 
 
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
-          sheet: str | None = None, names_row: int | None = None, missing_codes: tuple[float, ...] = (),
-          keep: tuple[str, ...] | list[str] = (), reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
+          sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None,
+          missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
           strata: str | None = None, weight_kind: str | None = None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
     are complete, how many have gaps (kept by default) and each item's
@@ -1479,7 +1500,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     from cfa_tool.model.parameters import build_parameter_table
 
     opt.group_column(group)
-    read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep, "names_row": names_row}
+    read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep, "names_row": names_row,
+                    "first_data_row": first_data_row}
     design = design_columns(weights, cluster, strata, weight_kind)
     if summary_source(data):
         refuse_row_options(f"'{data}'", group=group, **read_options)

@@ -730,10 +730,11 @@ ORDINAL_BOOTSTRAP = ("Ordinal items: each resample gets its own thresholds and p
 def _split_sentence(rows) -> str:
     """Which rows of the file random halves were drawn from (workflows.replication.SplitRows)."""
     if rows.split >= rows.in_file:
-        return f"The {rows.split} rows of the file were split at random into two halves."
+        return (f"The {rows.split} rows {f'{rows.kept_words()[1:]}' if rows.filters else 'of the file'} were split at "
+                f"random into two halves.")
     why = ("they miss some answers, and the halves hold complete rows only" if rows.complete_only else
            "they answer none of the model's items")
-    return (f"{rows.split} of the {rows.in_file} rows were split at random into two halves; the other "
+    return (f"{rows.split} of the {rows.in_file} rows{rows.kept_words()} were split at random into two halves; the other "
             f"{rows.in_file - rows.split} were left out before the split ({why}).")
 
 

@@ -537,13 +537,17 @@ SHARED_ROWS = 0.2
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
               sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
-              validation_names_row: int | None = None, **options) -> Replication:
+              validation_names_row: int | None = None, first_data_row: int | None = None,
+              validation_first_data_row: int | None = None, keep: tuple[str, ...] | list[str] = (),
+              **options) -> Replication:
     """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
     their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too);
     ``missing_codes`` apply to both files, as for ``fit``; ``sheet`` to those of the two that are Excel workbooks
     (a calibration workbook with a CSV validation file), an error when neither is one.  The row of column names is
     each file's own: ``names_row`` that of the calibration file, ``validation_names_row`` that of the validation
-    file (a workbook with question texts above the item codes beside a plain CSV file)."""
+    file (a workbook with question texts above the item codes beside a plain CSV file), and so is the row where its
+    data start (``first_data_row``, ``validation_first_data_row``).  ``keep``: row filters ('Finished = True'),
+    applied to each file, as for ``fit``; each file's notes say how many rows they kept."""
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
@@ -553,12 +557,14 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           f"new data ({_one_file_instead()})")
     sheets = sheet_of_each((calibration, validation), sheet)
-    # each file read as fit reads its data (declared scales, answer words, codes as labels, values that look like
-    # no answers): a hostile trial found replicate analysing answers beyond a declared scale that fit refuses
-    read, notes = zip(*(read_inputs_with_notes(spec, calibration, sheets[0], missing_codes, names_row=names_row)[1:],
-                        read_inputs_with_notes(spec, validation, sheets[1], missing_codes,
-                                               names_row=validation_names_row,
-                                               names_option=Option.VALIDATION_NAMES_ROW)[1:]))
+    # each file read as fit reads its data (row filters, declared scales, answer words, codes as labels, values
+    # that look like no answers): a hostile trial found replicate analysing answers beyond a declared scale that fit
+    # refuses; the row filters apply to each file, their notes naming it
+    read, notes = zip(read_inputs_with_notes(spec, calibration, sheets[0], missing_codes, keep, names_row=names_row,
+                                             first_data_row=first_data_row, name_the_file=True)[1:],
+                      read_inputs_with_notes(spec, validation, sheets[1], missing_codes, keep,
+                                             names_row=validation_names_row, names_option=Option.VALIDATION_NAMES_ROW,
+                                             first_data_row=validation_first_data_row, name_the_file=True)[1:])
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
     screens = list(read)
@@ -597,16 +603,20 @@ def _left_out(dropped: int, read: int, source: str, missing, ordinal_items) -> t
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1,
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
+               first_data_row: int | None = None, keep: tuple[str, ...] | list[str] = (),
                **options) -> tuple[Replication, Replication]:
     """Random halves A and B (seeded) of the rows analysed (with continuous items and gaps, every row with an
-    answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse."""
+    answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse.
+    ``keep``: row filters ('Finished = True'), applied before the split, as for ``fit``: the halves are drawn from
+    the rows they keep."""
     seed = check.seed(seed)
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
                                                      options if missing is None else {**options, "missing": missing},
                                                      SPLIT_HALF_KEYWORDS)
-    _, loaded, notes = read_inputs_with_notes(spec, data, sheet, missing_codes, names_row=names_row)  # as fit reads it
+    _, loaded, notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep, names_row=names_row,
+                                              first_data_row=first_data_row)  # as fit reads it
     notes = tuple(notes)
     frame, source = loaded.frame, loaded.source
     screen = loaded
@@ -614,7 +624,8 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
         pair, halves = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)
     split = pair[0].calibration_result.n_obs + pair[0].loose.n_obs
     rows = SplitRows(split, len(frame), split < len(frame.dropna(subset=list(spec.observed_names), how="all")),
-                     *halves)
+                     *halves, filters=loaded.row_filters,
+                     rows_in_file=len(loaded.read_frame) if loaded.read_frame is not None else None)
     # the rows left out before the split (the halves hold complete rows only): fit's caution, after the data's
     problems = data_problems(screen, spec) + _left_out(len(frame) - split, len(frame), source,
                                                        MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
@@ -639,9 +650,26 @@ class SplitRows:
     #: of half B
     half_a: tuple[int, ...] = field(default=(), repr=False)
     half_b: tuple[int, ...] = field(default=(), repr=False)
+    #: the row filters (data.filters.RowFilter) that chose the ``in_file`` rows before the split, and the rows the file
+    #: held before them (None without filters)
+    filters: tuple = ()
+    rows_in_file: int | None = None
 
     def to_dict(self) -> dict:
-        return {"rows_split": self.split, "rows_in_file": self.in_file, "complete_rows_only": self.complete_only}
+        out = {"rows_split": self.split, "rows_in_file": self.in_file, "complete_rows_only": self.complete_only}
+        if self.filters:
+            out.update(rows_kept_by_filters=self.in_file, rows_in_file=self.rows_in_file,
+                       row_filters=[f.text for f in self.filters])
+        return out
+
+    def kept_words(self) -> str:
+        """' kept by the row filter 'Finished = True' (of the 900 rows in the file)': the rows the filters chose
+        before the split ('' without filters)."""
+        if not self.filters:
+            return ""
+        which = "filter" if len(self.filters) == 1 else "filters"
+        return (f" kept by the row {which} {', '.join(repr(f.text) for f in self.filters)} (of the "
+                f"{self.rows_in_file} rows in the file)")
 
 
 def _split_half(spec: Spec, frame: pd.DataFrame, source: str, seed: int, ordinal_items, method, missing,

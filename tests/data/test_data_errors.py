@@ -45,8 +45,8 @@ def test_missing_file(tmp_path):
 
 def test_text_in_an_indicator_column():
     data = _frame().astype(object)
-    data.loc[7, "b"] = "n/a?"
-    with pytest.raises(DataError, match=r"column 'b' holds text \('n/a\?' in index label 7\) among numbers; correct the cell"):
+    data.loc[7, "b"] = "see note"  # ('n/a?' says no answer: read as missing, from a data frame as from a file)
+    with pytest.raises(DataError, match=r"column 'b' holds text \('see note' in index label 7\) among numbers; correct the cell"):
         cfa_tool.fit(MODEL, data)
 
 

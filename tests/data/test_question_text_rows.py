@@ -1,0 +1,157 @@
+"""A row of question texts under the item codes, as web-survey platforms export it, when the answers are recorded
+as words (new-user trial, session 12): named as a header row with the way to skip it (it used to be read as an
+unknown answer word, "add it to the statement with its code"), and skipped by ``first_data_row`` (--first-data-row),
+after which it is no row of data: not counted among the rows read, not written to a scores file.
+
+The data are invented (a fictional transit agency's rider survey: comfort c1..c3 and courtesy s1..s3 answered in
+words).  Check values: row counts and line numbers are counted here from the rows written below; the same rows
+written without the question-text row (by openpyxl and pandas, independent writers) are the reference fit."""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+
+import numpy as np
+import openpyxl
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.data.moments import row_numbers
+from cfa_tool.data.readers import read_data
+from cfa_tool.errors import DataError, OptionError
+from cfa_tool.reporting.paragraph import methods_paragraph
+from tests.conftest import simulate_cfa
+
+ITEMS = ["c1", "c2", "c3", "s1", "s2", "s3"]
+WORDS = ["Never", "Sometimes", "Often", "Always"]
+QUESTIONS = ["The seats were comfortable.", "The ride was smooth.", "The bus was clean.",
+             "The driver greeted me.", "Staff answered my questions.", "Staff were polite."]
+CODED = 'answers "Never" = 1, "Sometimes" = 2, "Often" = 3, "Always" = 4\n'
+MODEL = "factor comfort: c1..c3\nfactor courtesy: s1..s3\n"
+N = 300
+
+
+def _answers() -> pd.DataFrame:
+    loadings = np.kron(np.eye(2), np.full((3, 1), 0.8))
+    latent = simulate_cfa(loadings, np.array([[1, 0.4], [0.4, 1]]), np.eye(6) * 0.36, N, 1212, ITEMS)
+    words = latent.apply(lambda column: pd.Series(np.array(WORDS)[np.digitize(column, [-0.6, 0.3, 1.1])],
+                                                  index=column.index))
+    words.insert(0, "Finished", np.arange(N) % 10 != 3)
+    words.insert(0, "Response ID", [f"R_{k:05d}" for k in range(N)])
+    return words
+
+
+def _workbook(path, frame: pd.DataFrame, questions: bool = True) -> None:
+    book = openpyxl.Workbook()
+    sheet = book.active
+    sheet.append(list(frame.columns))
+    if questions:
+        sheet.append(["Response ID", "Finished"] + QUESTIONS)
+    for row in frame.itertuples(index=False):
+        sheet.append(list(row))
+    book.save(path)
+
+
+def _text_file(path, frame: pd.DataFrame) -> None:
+    lines = [",".join(frame.columns), ",".join(["Response ID", "Finished"] + [f'"{q}"' for q in QUESTIONS])]
+    lines += [",".join(str(v) for v in row) for row in frame.itertuples(index=False)]
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+
+
+@pytest.mark.parametrize("statement", [CODED, ""], ids=["answers statement", "no answers statement"])
+def test_a_row_of_question_texts_is_named_with_the_option_that_skips_it(tmp_path, statement):
+    frame = _answers()
+    book, text = tmp_path / "riders.xlsx", tmp_path / "riders.csv"
+    _workbook(book, frame)
+    _text_file(text, frame)
+    for path, where in ((book, "riders.xlsx (sheet 'Sheet')"), (text, "riders.csv")):
+        with pytest.raises(DataError) as raised:
+            cfa_tool.check(MODEL + statement, path)
+        message = str(raised.value)
+        assert where in message and "row 2 under the column names looks like a further header row" in message
+        assert "first_data_row=3" in message and "text such as 'Staff answered my questions.'" in message  # the longest
+        assert "add it to the statement" not in message
+
+
+def test_answer_words_without_a_question_row_are_read_as_answers(tmp_path):
+    frame = _answers()
+    path = tmp_path / "riders.xlsx"
+    _workbook(path, frame, questions=False)
+    checked = cfa_tool.check(MODEL + CODED, path)
+    assert checked.rows == checked.complete == N
+
+
+def test_the_skipped_row_is_no_row_of_data(tmp_path):
+    frame = _answers()
+    path, plain = tmp_path / "riders.xlsx", tmp_path / "plain.xlsx"
+    _workbook(path, frame)
+    _workbook(plain, frame, questions=False)  # the reference: the same rows without the question texts
+    finished = int(frame["Finished"].sum())  # pandas, from the rows written
+    fitted = cfa_tool.fit(MODEL + CODED, path, first_data_row=3, keep=["Finished = True"])
+    reference = cfa_tool.fit(MODEL + CODED, plain, keep=["Finished = True"])
+    assert fitted.n_obs == reference.n_obs == finished
+    assert fitted.data.rows_in_file == reference.data.rows_in_file == N  # not N + 1
+    assert fitted.fit.chi_square == pytest.approx(reference.fit.chi_square, rel=1e-12)
+    said = [w for w in fitted.warnings if "not read as data" in w]
+    assert said == [f"{path} (sheet 'Sheet'): row 2 was not read as data (between the column names in row 1 and "
+                    "the first row of data, 3, as first_data_row=3 asks)"]
+    assert f"N = {finished} of the {N} rows in the data file" in " ".join(methods_paragraph(fitted).split())
+
+
+def test_a_text_file_keeps_its_line_numbers(tmp_path):
+    frame = _answers()
+    path = tmp_path / "riders.csv"
+    _text_file(path, frame)
+    loaded = read_data(path, first_data_row=3)
+    assert len(loaded.frame) == N
+    assert list(row_numbers(loaded.frame)) == list(range(3, N + 3))  # line k + 3 of the file holds row k written
+    assert loaded.frame["Response ID"].tolist() == frame["Response ID"].tolist()
+    assert any("line 2 was not read as data" in note for note in loaded.notes)
+
+
+def test_scores_file_has_no_row_of_question_texts(tmp_path):
+    frame = _answers()
+    path, model, out = tmp_path / "riders.xlsx", tmp_path / "riders.cfa", tmp_path / "scores.csv"
+    _workbook(path, frame)
+    model.write_text(MODEL + CODED, encoding="utf-8")
+    done = subprocess.run([sys.executable, "-m", "cfa_tool", "scores", str(model), "--data", str(path), "--id",
+                           "Response ID", "--first-data-row", "3", "--output", str(out)], capture_output=True, text=True)
+    assert done.returncode == 0, done.stderr
+    written = pd.read_csv(out)
+    assert written["Response ID"].tolist() == frame["Response ID"].tolist()  # no row 'Response ID'
+    assert f"Scores of {N} rows" in done.stdout + done.stderr
+
+
+def test_a_first_row_of_data_that_cannot_apply(tmp_path):
+    frame = _answers()
+    book, text = tmp_path / "riders.xlsx", tmp_path / "riders.csv"
+    _workbook(book, frame)
+    _text_file(text, frame)
+    with pytest.raises(DataError, match=r"row 1 \(first_data_row=1\) is not below the column names, which are in row 1"):
+        cfa_tool.check(MODEL + CODED, book, first_data_row=1)
+    with pytest.raises(DataError, match=rf"has {N + 2} lines, so line {N + 5} \(first_data_row={N + 5}\) cannot be"):
+        cfa_tool.check(MODEL + CODED, text, first_data_row=N + 5)
+    with pytest.raises(DataError, match=r"line 4 \(first_data_row=4\) is not below the column names, which are in line "
+                                        r"4"):
+        cfa_tool.check(MODEL + CODED, text, names_row=4, first_data_row=4)
+    with pytest.raises(OptionError, match=r"a first row of data \(first_data_row=\.\.\.\) is read from a file"):
+        cfa_tool.fit(MODEL + CODED, frame, first_data_row=3)
+    done = subprocess.run([sys.executable, "-m", "cfa_tool", "check", str(tmp_path / "m.cfa"), "--data", str(book),
+                           "--first-data-row", "1"], capture_output=True, text=True)
+    assert done.returncode == 2 and "the first row of data must be a row number (2 or more" in done.stderr
+
+
+def test_rare_answers_in_the_first_row_of_data_are_no_header_row(tmp_path):
+    # the first row holds the only 'Depot 7' and 'Intern' of two columns of words, beside numbers: a row of data,
+    # read as such by explore, which looks at every column (no model names the items)
+    frame = _answers().drop(columns="Finished")
+    numbers = pd.DataFrame({x: frame[x].map({w: k + 1 for k, w in enumerate(WORDS)}) for x in ITEMS})
+    numbers.insert(0, "site", np.where(np.arange(N) % 2, "Harbour", "Hill"))
+    numbers.insert(1, "role", np.where(np.arange(N) % 3, "Driver", "Clerk"))
+    numbers.loc[0, ["site", "role"]] = ["Depot 7", "Intern"]
+    path = tmp_path / "riders.csv"
+    numbers.to_csv(path, index=False)
+    loaded = read_data(path)
+    assert len(loaded.frame) == N and loaded.frame.loc[loaded.frame.index[0], "site"] == "Depot 7"
