@@ -562,8 +562,9 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
                   group_labels: tuple[str, ...]) -> str | None:
     """Why the entry ``key`` (group, kind, names) is not a free parameter, in words that follow 'PARAMETER is'
     ('fixed at 1 by the 'fix' statement on line 4', 'fixed through its tie to loading(f, a) ...'), or None when
-    it is free.  A factor mean outside the first group that the model fixes at 0 only because nothing identifies
-    it counts as free: the invariance ladder frees it at the step that holds its indicators' intercepts equal."""
+    it is free.  With groups, a factor mean that the model fixes at 0 only because nothing identifies it counts as
+    free: the invariance ladder frees it at the step that holds its indicators' intercepts equal, and the
+    population of a power study with groups reads each group's mean from 'start' (workflows.group_population)."""
     e = entries[key]
     g, kind, names = key
     if key in effects:
@@ -583,8 +584,9 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
         else:
             how = f"held equal by the 'equal' statement{'s' if len(lines) > 1 else ''} on line" + (
                 f"{'s' if len(lines) > 1 else ''} {' and '.join(map(str, lines))}")
-        return (f"fixed through its tie to {label} ({how}), which is "
-                f"{_why_not_free(spec, other, entries, effects, fixed_by, tied_to, multi, group_labels)}")
+        why = (_why_not_free(spec, other, entries, effects, fixed_by, tied_to, multi, group_labels)
+               or f"fixed at {entries[other]['fixed']:g} in the first group, which sets the origin of the means")
+        return f"fixed through its tie to {label} ({how}), which is {why}"
     if key in fixed_by:
         ref = fixed_by[key]
         what = ("to orient its exploratory block" if e["origin"] == "exploratory" else "")
@@ -595,11 +597,9 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
         return (f"fixed at {value:g} to give the latent response of the ordinal item '{names[0]}' its "
                 f"{'origin' if kind == 'intercept' else 'unit'} (Wu & Estabrook 2016)")
     if kind == "mean":
-        if not multi:
-            return "fixed at 0: with one group a factor's mean is 0, which sets the origin of its scale"
-        if g == 0:
-            return f"fixed at 0 in the first group ({group_labels[0]}), which sets the origin of the means"
-        return None
+        # with groups, a start on a factor mean fixed at 0 can apply at another step of the invariance ladder, and
+        # in a population with groups (power of the invariance tests) it gives the group's mean
+        return None if multi else "fixed at 0: with one group a factor's mean is 0, which sets the origin of its scale"
     return f"fixed at {value:g}"  # pragma: no cover - every fixed entry has one of the reasons above
 
 
