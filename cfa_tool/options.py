@@ -178,6 +178,12 @@ class Option(enum.Enum):
     DECIDE_BY = ("--decide-by", "decide_by")
     MAX_ITERATIONS = ("--max-iterations", "max_iterations")
     SCORE_METHODS = ("--method", "methods", None, True)
+    DATA = ("--data", "data")
+    ITEMS = ("--items", "items")  # explore's items
+    ANSWERS = ("--answers", "answers")  # explore's answers file
+    FACTORS = ("--factors", "factors")  # explore's number of factors
+    TARGET = ("--target", "target")  # explore's target of rotation
+    SIMULATED_MISSING = ("--missing", "missing")  # simulate's share of answers removed at random
 
     def __init__(self, flag: str, keyword: str, switch: str | None = None, listed: bool = False) -> None:
         self.flag = flag

@@ -231,24 +231,29 @@ def _fit_dict(step: FitStep) -> dict:
 
 
 def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str], source: str) -> tuple[str, ...] | None:
-    """Items from a list of names, or from text: names separated by commas, where 'a..b' is every column of the
-    data from column a to column b in the file's order; a name that holds a comma is written in double quotes, as
-    the model language writes it (:func:`cfa_tool.language.names.read_name_list`)."""
+    """Items from a list of names, or from text: names separated by commas, where 'item1..item9' is a range the
+    model language counts (:func:`cfa_tool.language.names.range_names`: the ends are one name but for one number,
+    whatever the order of the columns in the file), as ``--ordinal`` and a model file count it, so that a range
+    names the same items in every place it is written; a name that holds a comma is written in double quotes, as the
+    model language writes it (:func:`cfa_tool.language.names.read_name_list`); a column whose name is the whole
+    piece ('a..b') is that column."""
+    from cfa_tool.language.names import range_names, read_name_list
+    from cfa_tool.options import Option
+
     if text is None:
         return None
     if isinstance(text, (list, tuple)):
         if not all(isinstance(p, str) for p in text):
-            raise OptionError("items must be column names (text)")
+            raise OptionError(f"{Option.ITEMS} must be column names (text)")
         pieces = [(p, (p,) if p in columns else tuple(p.split(".."))) for p in text]
     elif isinstance(text, str):
-        from cfa_tool.language.names import read_name_list
-
-        pieces = read_name_list(text, "items")
+        pieces = read_name_list(text, str(Option.ITEMS))
         if not all(all(ends) for _, ends in pieces):
-            raise OptionError(f"items: give column names separated by commas (a..b for a span of columns; a name "
-                              f'that holds a comma in double quotes, "like, this"), not \'{printable(text)}\'')
+            raise OptionError(f"{Option.ITEMS}: give column names separated by commas (item1..item9 for a numbered "
+                              f'range; a name that holds a comma in double quotes, "like, this"), not '
+                              f"'{printable(text)}'")
     else:
-        raise OptionError(f"items must be column names, not {type(text).__name__}")
+        raise OptionError(f"{Option.ITEMS} must be column names, not {type(text).__name__}")
     out: list[str] = []
     for raw, ends in pieces:
         piece = raw if raw is not None else "..".join(ends)
@@ -262,25 +267,30 @@ def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str
 
                 span = dotted_span(end)
                 if span is not None and all(e in columns for e in span.split("..")):
-                    raise OptionError(f"items: {source} has no column '{printable(end)}'; a span of columns is "
-                                      f"written with two dots: '{printable(span)}'")
+                    raise OptionError(f"{Option.ITEMS}: {source} has no column '{printable(end)}'; a range of "
+                                      f"numbered columns is written with two dots: '{printable(span)}'")
                 hint = comma_hint(end, columns)
                 guess = close_names(end, columns)
-                raise OptionError(f"items: {source} has no column '{printable(end)}'"
+                raise OptionError(f"{Option.ITEMS}: {source} has no column '{printable(end)}'"
                                   + (hint or (f"; did you mean '{printable(guess[0])}'?" if guess else "")))
         if len(ends) == 2:
-            lo, hi = columns.index(ends[0]), columns.index(ends[1])
-            if lo > hi:
-                raise OptionError(f"items: '{printable(piece)}': column '{printable(ends[0])}' comes after "
-                                  f"'{printable(ends[1])}' in {source}; write the span in the file's order")
-            span = columns[lo:hi + 1]
+            option = Option.ITEMS.given(piece)
+            span = range_names(ends[0], ends[1], lambda message: OptionError(
+                f"{option}: {message}" + ("; name columns that do not number alike one by one, separated by commas"
+                                          if "same name" in message or "with a number" in message else "")))
+            missing = [x for x in span if x not in columns]
+            if missing:
+                raise OptionError(f"{option}: the range counts '{printable(missing[0])}', which is not a column of "
+                                  f"{source}; a range counts numbered names ('q1..q9' is q1, q2, ..., q9), not the "
+                                  f"columns between its ends in the file: name the items one by one, separated by "
+                                  f"commas")
         elif len(ends) == 1:
             span = ends
         else:
-            raise OptionError(f"items: '{printable(piece)}' is not a column name or a span a..b")
+            raise OptionError(f"{Option.ITEMS}: '{printable(piece)}' is not a column name or a range item1..item9")
         for name in span:
             if name in out:
-                raise OptionError(f"items: '{printable(name)}' is named twice")
+                raise OptionError(f"{Option.ITEMS}: '{printable(name)}' is named twice")
             out.append(name)
     return tuple(out)
 
@@ -570,7 +580,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
             answers=None) -> ExploreResult:
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
-    ``items``: column names, or text 'a, b, c' with 'a..b' for a span of columns (default: every column that
+    ``items``: column names, or text 'a, b, c' with 'q1..q9' for a numbered range, counted as a model file counts
+    it (default: every column that
     holds numbers, except row numbers or ids and columns whose names say they are weights, clusters, strata, ids
     or groups, see :func:`column_role`); ``factors``: a whole number, or None / 'auto' for the recommended number; ``rotation``:
     varimax, quartimin (default), oblimin, geomin, promax, target (with ``target``: a matrix with NaN where
