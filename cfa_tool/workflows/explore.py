@@ -17,6 +17,7 @@ import pandas as pd
 
 from cfa_tool.assessment.admissibility import sample_size_problems
 from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.options import Interface, Option, interface
 from cfa_tool.exploration import (CountNote, CountRule, Exploration, ExploreSettings, ExtractionMethod, RotationMethod,
                                   RotationSpec, explore_correlations, from_ordinal_moments, from_sample_moments)
 from cfa_tool.data.answer_words import coding_json, coding_record
@@ -238,7 +239,6 @@ def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str
     model language writes it (:func:`cfa_tool.language.names.read_name_list`); a column whose name is the whole
     piece ('a..b') is that column."""
     from cfa_tool.language.names import range_names, read_name_list
-    from cfa_tool.options import Option
 
     if text is None:
         return None
@@ -350,7 +350,7 @@ def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: t
         general = next((c for c in codings if not c.items), None)
         unlisted = [printable(c) + (f" ('{printable(cell)}' in {row_naming(frame).one_row(row)})" if cell is not None else "")
                     for c in text[:10] for cell, row in [_first_unlisted(frame[c], general)]]
-        said += (" Left out as text holding none of the answers file's words (--answers): "
+        said += (f" Left out as text holding none of the answers file's words ({Option.ANSWERS}): "
                  + ", ".join(unlisted) + (f" and {len(text) - 10} more" if len(text) > 10 else "") + ".")
     elif text:
         said += f" Left out as text (not numbers): {listed(text)}; {_answers_file_hint(frame, text)}."
@@ -363,8 +363,8 @@ def _answers_file_hint(frame: pd.DataFrame, text: list) -> str:
     from cfa_tool.data.answer_scales import suggested_statement
 
     statement = next((s for s in (suggested_statement(frame[c].to_numpy(dtype=object)) for c in text) if s), None)
-    return ("answers recorded as words (yes/no, agree) are explored with an answers file (--answers FILE) whose "
-            "'answers' statement gives each word its code" + (f", such as the line: {statement}" if statement else ""))
+    return (f"answers recorded as words (yes/no, agree) are explored with an answers file "
+            f"({Option.ANSWERS.given('FILE')}) whose 'answers' statement gives each word its code" + (f", such as the line: {statement}" if statement else ""))
 
 
 def _first_unlisted(column: pd.Series, coding) -> tuple[object, int | None]:
@@ -439,19 +439,19 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
     worded = _word_columns(frame, numeric, codings)
     chosen = tuple(c for c in columns if c in worded or (c in numeric and c not in ids + roles + coded))
     if codings and not worded:
-        raise OptionError(f"no column of {source} holds only the words of the answers file's statements (--answers); "
-                          f"name the items with --items to see which cells differ")
+        raise OptionError(f"no column of {source} holds only the words of the answers file's statements "
+                          f"({Option.ANSWERS}); name the items with {Option.ITEMS} to see which cells differ")
     said = f"every column of {source} that holds numbers" + (" or the words of the answers file" if worded else "")
-    note = (f"Items: {said} ({len(chosen)}); choose them with --items."
+    note = (f"Items: {said} ({len(chosen)}), which {Option.ITEMS} can change."
             + (f" Left out as row numbers or ids (every value a different whole number): "
                f"{', '.join(printable(c) for c in ids)}." if ids else "")
             + (f" Left out as codes of categories (every value has a value label of its own, as a "
                f"department's do; the items share their answer scale's labels): "
-               f"{', '.join(printable(c) for c in coded)} (name them in --items to explore them)."
+               f"{', '.join(printable(c) for c in coded)} (name them in {Option.ITEMS} to explore them)."
                if coded else "")
             + (" Left out by their names, as columns of the sampling design, ids, groups, the respondents' "
                "particulars or the survey's records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
-               + " (name them in --items to explore them)." if roles else "")
+               + f" (name them in {Option.ITEMS} to explore them)." if roles else "")
             + _text_columns_phrase(frame, numeric + worded, codings))
     return chosen, note, worded
 
@@ -463,7 +463,7 @@ def _refuse_too_few(chosen: tuple[str, ...], scan, codings: tuple) -> None:
         return
     found = (f"only {len(chosen)} of its columns hold{'s' if len(chosen) == 1 else ''} answers as numbers "
              f"({', '.join(printable(c) for c in chosen)})" if chosen else "none of its columns holds numbers")
-    hint = scan.sheet_hint() or "; name the items with --items"
+    hint = scan.sheet_hint() or f"; name the items with {Option.ITEMS}"
     if not codings and not scan.sheet_hint():
         frame = scan.frame
         numeric = _numeric_columns(frame)
@@ -504,9 +504,10 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
             where = (f"{source}: column '{printable(name)}' holds words ('{shown}' in {row_naming(column).one_row(row)}), "
                      f"and explore analyses numbers")
             if codings:
-                raise DataError(f"{where}: add the column to an 'answers' statement of the answers file (--answers) "
-                                f"with 'for', or take it out of --items")
-            raise DataError(f"{where}: give explore an answers file (--answers FILE) whose 'answers' statement says "
+                raise DataError(f"{where}: add the column to an 'answers' statement of the answers file "
+                                f"({Option.ANSWERS}) with 'for', or take it out of {Option.ITEMS}")
+            raise DataError(f"{where}: give explore an answers file ({Option.ANSWERS.given('FILE')}) whose 'answers' "
+                            f"statement says "
                             f"what each word means" + (f", such as the line: {statement}" if statement else "")
                             + "; or recode the answers as numbers")
 
@@ -527,7 +528,7 @@ def _explored_spec(chosen: tuple[str, ...], codings: tuple, answers, worded: tup
         for name in coding.items:
             if name.text not in chosen:
                 raise ModelError(f"'{printable(name.text)}' is not one of the items explored"
-                                 + ("; name it in --items, or take it out of the statement" if worded is None else
+                                 + (f"; name it in {Option.ITEMS}, or take it out of the statement" if worded is None else
                                     " (the data have no such column)"), name.location)
     factor = Factor(Name(factor_names(1, chosen)[0], where), tuple(Name(c, where) for c in chosen))
     spec = Spec(source=where.source, text="", title=None, factors=(factor,), answers=codings)
@@ -627,7 +628,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     if empty is not None and not by_default:  # the reading of the items would say 'take it out of the model'
         raise DataError(f"{source}: column '{printable(empty)}' has no answers"
                         + (" in the rows the row filters kept" if loaded.read_frame is not None else " at all")
-                        + " (every cell is empty); take it out of --items, or check the data file")
+                        + f" (every cell is empty); take it out of {Option.ITEMS}, or check the data file")
     if by_default:
         constant = [c for c in chosen if frame[c].nunique(dropna=True) <= 1]
         chosen = tuple(c for c in chosen if c not in constant)
@@ -639,8 +640,9 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     rotation_method = options.choice(RotationMethod, rotation, "the rotation")
     extraction_method = options.choice(ExtractionMethod, extraction, "the extraction")
     if rotation_method is RotationMethod.TARGET and target is None:
-        raise OptionError("target rotation needs a target: a target file (--target FILE; items by factors, 0 where a "
-                          "loading is aimed at zero, empty where free) or, from Python, a matrix (target=...)")
+        raise OptionError(f"target rotation needs a target: a target file ({Option.TARGET.given('FILE')}; items by "
+                          f"factors, 0 where a loading is aimed at zero, empty where free)"
+                          + (", or a matrix (target=...)" if interface() is Interface.PYTHON else ""))
     if target is not None and rotation_method is not RotationMethod.TARGET:
         raise OptionError(f"a target applies to target rotation only, not to {rotation_method.value}")
     target_file = None
@@ -654,7 +656,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
             notes.append(f"Factors: {requested}, the columns of the target file {target_file.source} "
                          f"({', '.join(target_file.factors)}).")
         elif requested != len(target_file.factors):
-            raise OptionError(f"--factors asks for {requested} factors, and the target file {target_file.source} has "
+            raise OptionError(f"{Option.FACTORS.given(requested)} asks for {requested} factors, and the target file "
+                              f"{target_file.source} has "
                               f"{len(target_file.factors)} factor columns")
     ordinal_items = _ordinal_items(ordinal, chosen)
     # values that look like no answers among the rows read (both halves of a split): first in every view
