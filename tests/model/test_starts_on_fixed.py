@@ -12,6 +12,8 @@ No computation is checked here: only which statements the parameter table refuse
 
 from __future__ import annotations
 
+import re
+
 import numpy as np
 import pytest
 
@@ -31,9 +33,6 @@ REFUSED = [
     ("fix loading(f, c) = 0.5\nequal loading(f, b), loading(f, c)\nstart loading(f, b) = 0.8\n", None, False, (5, 7),
      "loading(f, b) is fixed through its tie to loading(f, c) (held equal by the 'equal' statement on line 4), which "
      "is fixed at 0.5 by the 'fix' statement on line 3"),
-    ("fix loading(f, c) = 0.5\nequal loading(f, b), loading(f, c)\nbound loading(f, b) >= 0\n", None, False, (5, 7),
-     "loading(f, b) is fixed through its tie to loading(f, c) (held equal by the 'equal' statement on line 4), which "
-     "is fixed at 0.5 by the 'fix' statement on line 3, so a bound on it has no effect; remove the bound or the tie"),
     # a chain of ties: b to a, c to b; a residual variance fixed by a 'fix' statement reaches both
     ("fix variance(a) = 0.4\nequal variance(a), variance(b)\nequal variance(b), variance(c)\n"
      "start variance(c) = 0.5\n", None, False, (6, 7),
@@ -51,8 +50,6 @@ REFUSED = [
     ("fix loading(f, b) = 0.5\nin group south: start loading(f, b) = 0.3\n", GROUPS, False, (4, 23),
      "loading(f, b) in group south is fixed at 0.5 by the 'fix' statement on line 3, so a start value on it has no "
      "effect; remove the start value"),
-    ("fix loading(f, b) = 0.5\nin group south: bound loading(f, b) <= 0.3\n", GROUPS, False, (4, 23),
-     "loading(f, b) in group south is fixed at 0.5 by the 'fix' statement on line 3, so a bound on it has no effect"),
 ]
 
 
@@ -62,6 +59,16 @@ def test_a_start_or_bound_on_a_parameter_fixed_another_way_is_refused(statements
         build_parameter_table(parse_model(F + statements, "m.cfa"), groups, mean_structure=means)
     assert (info.value.location.line, info.value.location.column) == place
     assert words in str(info.value)
+
+
+@pytest.mark.parametrize("statements, groups, means, place, words", REFUSED)
+def test_a_bound_where_a_start_is_refused_is_refused_too(statements, groups, means, place, words):
+    bounded = re.sub(r"start (.*) = [\d.]+", r"bound \1 >= 0", statements)
+    with pytest.raises(ModelError) as info:
+        build_parameter_table(parse_model(F + bounded, "m.cfa"), groups, mean_structure=means)
+    assert (info.value.location.line, info.value.location.column) == place
+    said = words.split(", so a start value")[0].removeprefix("m.cfa:4:7: ")
+    assert said in str(info.value) and "so a bound on it has no effect; remove the bound" in str(info.value)
 
 
 # statements that apply in at least one group the statement names, and the free parameter whose start they give
