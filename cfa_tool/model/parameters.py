@@ -460,9 +460,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     upper = np.full(n_free, np.inf)
     for bound in spec.bounds:
         for ref in bound.refs:
-            for g in groups_of(ref):
-                if (g, *ref.key()) in effects:
-                    raise _fail(spec, f"{ref} is tied by effects coding and cannot carry its own bound", ref)
+            for g in groups_of(ref):  # (a loading effects coding gives was refused above: it is in no group free)
                 k = free_index(ref, g)
                 if k is None:
                     continue
