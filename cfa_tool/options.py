@@ -182,6 +182,13 @@ class Option(enum.Enum):
     SCORE_METHODS = ("--method", "methods", None, True)
     MISSING_HELPERS = ("--missing-helpers", "missing_helpers", None, True)
     LEAST_ANSWERED = ("--least-answered", "least_answered")
+    DATA = ("--data", "data")
+    ITEMS = ("--items", "items")  # explore's items
+    ANSWERS = ("--answers", "answers")  # explore's answers file
+    FACTORS = ("--factors", "factors")  # explore's number of factors
+    TARGET = ("--target", "target")  # explore's target of rotation
+    SPLIT = ("--split", "split")  # explore's seed of the random halves
+    SIMULATED_MISSING = ("--missing", "missing")  # simulate's share of answers removed at random
 
     def __init__(self, flag: str, keyword: str, switch: str | None = None, listed: bool = False) -> None:
         self.flag = flag

@@ -15,7 +15,8 @@ def add_parser(sub) -> None:
     p = sub.add_parser("explore", help="how many factors, an exploratory solution, and a draft model file")
     p.add_argument("--data", required=True, metavar="FILE", help="data file (rows of answers)")
     p.add_argument("--items", metavar="NAMES",
-                   help="comma-separated columns to explore; a..b is every column from a to b in the file "
+                   help="comma-separated columns to explore; item1..item9 is a range counted as a model file counts it "
+                        "(q1..q9 is q1, q2, ..., q9, whatever the order of the columns) "
                         "(default: every column that holds numbers, except ids and columns named as weights, "
                         "clusters, strata or groups; the report names those left out)")
     p.add_argument("--factors", metavar="K", default="auto",

@@ -258,9 +258,11 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                 entries[(g, *ref.key())].update(fixed=None, origin="user")
     fixed_settings = [(ref, s.value) for s in spec.fixed for ref in s.refs]
     block_factors = spec.exploratory_factors
+    fixed_by: dict[tuple, ParameterRef] = {}  # the 'fix' that applies to each entry a 'fix' statement fixes
     for ref, value in sorted(fixed_settings, key=lambda rv: rv[0].group is not None):
         for g in groups_of(ref):  # an exploratory block's echelon zeros orient it: they set no scale
             entries[(g, *ref.key())].update(fixed=value, origin="exploratory" if ref.names[0] in block_factors else "user")
+            fixed_by[(g, *ref.key())] = ref
 
     invariant = _invariant_kinds(spec)
     exceptions = {r.key() for r in spec.noninvariant}
@@ -359,6 +361,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
             keys = [(g, *r.key()) for r in group]
             for k in keys[1:]:
                 union(keys[0], k)
+    tied_to: dict[tuple, tuple] = {}  # an entry fixed through a tie -> the fixed entry it is tied to
     if multi:
         tied_kinds: set[str] = set()  # kinds of which at least one parameter is held equal across groups
         for key in entries:
@@ -370,20 +373,22 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                 elif key[1] == "mean" and entries[key]["fixed"] is None:
                     # a factor mean identified in this group and held equal: it takes the first group's (fixed) mean
                     entries[key].update(fixed=entries[first]["fixed"], origin="user")
+                    tied_to[key] = first
                     tied_kinds.add("mean")
         _check_equalities_hold(spec, tied_kinds)
 
-    group_fixed: dict[tuple, float] = {}
+    group_fixed: dict[tuple, tuple] = {}  # root of a set of tied entries -> the fixed entry among them
     for key, e in entries.items():
         if e["fixed"] is not None:
-            group_fixed[find(key)] = e["fixed"]
+            group_fixed.setdefault(find(key), key)
     for key in entries:
         root = find(key)
         if root in group_fixed and entries[key]["fixed"] is None:
             if key in effects:
                 raise _scale_error(spec, key[2][0], "a loading tied by effects coding cannot also be set equal to a fixed parameter")
-            entries[key]["fixed"] = group_fixed[root]
+            entries[key]["fixed"] = entries[group_fixed[root]]["fixed"]
             entries[key]["origin"] = "user"
+            tied_to[key] = group_fixed[root]
 
     order = sorted(entries, key=lambda k: _sort_key(k, entries[k]))
     index_of_root: dict[tuple, int] = {}
@@ -415,14 +420,35 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                if ref.kind == "loading" else f"scale '{factor}' by a marker instead ('scale {written_name(factor)} by marker')")
         return _fail(spec, f"{ref} is fixed to set the scale of '{factor}', so {word} on it has no effect; {how}", ref)
 
+    def cannot_apply(ref: ParameterRef, word: str) -> ModelError | None:
+        """The error for a start value or a bound (``word``) on a parameter that is not free in any group the
+        statement names (fixed by a 'fix', by a factor's scale, through a tie to a fixed parameter, or given by
+        effects coding), or None when the statement applies somewhere."""
+        keys = [(g, *ref.key()) for g in groups_of(ref)]
+        reasons = [_why_not_free(spec, k, entries, effects, fixed_by, tied_to, multi, group_labels) for k in keys]
+        if any(r is None for r in reasons):
+            return None
+        if all(entries[k]["origin"] == "scale" and k not in tied_to and k not in effects for k in keys) and (
+                ref.names[0] in lat_ix):
+            return no_effect(ref, word)  # the advice names the scale's other ways
+        # the tie is named where there is one (a group's mean held equal to the first group's names the tie)
+        at = next((i for i, k in enumerate(keys) if k in tied_to), 0)
+        first_key, why = keys[at], reasons[at]
+        if multi and ref.group is None:
+            why = f"fixed in every group (in group {group_labels[first_key[0]]}: {why})"
+        return _fail(spec, f"{ref} is {why}, so {word} on it has no effect; remove the {word.removeprefix('a ')}"
+                           f"{' or the tie' if first_key in tied_to else ''}", ref)
+
     for setting in spec.starts:
         for ref in setting.refs:
-            if scale_fixed_everywhere(ref):
-                raise no_effect(ref, "a start value")
+            error = cannot_apply(ref, "a start value")
+            if error is not None:
+                raise error
     for bound in spec.bounds:
         for ref in bound.refs:
-            if scale_fixed_everywhere(ref):
-                raise no_effect(ref, "a bound")
+            error = cannot_apply(ref, "a bound")
+            if error is not None:
+                raise error
     for ref in spec.noninvariant:
         if ref.kind != "threshold" and scale_fixed_everywhere(ref):
             raise no_effect(ref, "'noninvariant'")
@@ -434,9 +460,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
     upper = np.full(n_free, np.inf)
     for bound in spec.bounds:
         for ref in bound.refs:
-            for g in groups_of(ref):
-                if (g, *ref.key()) in effects:
-                    raise _fail(spec, f"{ref} is tied by effects coding and cannot carry its own bound", ref)
+            for g in groups_of(ref):  # (a loading effects coding gives was refused above: it is in no group free)
                 k = free_index(ref, g)
                 if k is None:
                     continue
@@ -530,6 +554,51 @@ def _start_values(spec: Spec, groups_of, free_index, multi: bool) -> dict[int, f
                               f"{ref0.location.line} and {value:g} on line {ref.location.line}; give them "
                               f"one{exempt}", ref)
     return {index: value for index, (value, _, _) in starts.items()}
+
+
+def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by: dict, tied_to: dict, multi: bool,
+                  group_labels: tuple[str, ...]) -> str | None:
+    """Why the entry ``key`` (group, kind, names) is not a free parameter, in words that follow 'PARAMETER is'
+    ('fixed at 1 by the 'fix' statement on line 4', 'fixed through its tie to loading(f, a) ...'), or None when
+    it is free.  With groups, a factor mean that the model fixes at 0 only because nothing identifies it counts as
+    free: the invariance ladder frees it at the step that holds its indicators' intercepts equal, and the
+    population of a power study with groups reads each group's mean from 'start' (workflows.group_population)."""
+    e = entries[key]
+    g, kind, names = key
+    if key in effects:
+        return (f"given by the other loadings of '{names[0]}' (effects coding makes them average 1), not a free "
+                f"parameter")
+    if e["fixed"] is None:
+        return None
+    value = e["fixed"]
+    if key in tied_to:
+        other = tied_to[key]
+        label = reference_text(other[1], other[2]) + (f" in group {group_labels[other[0]]}" if multi else "")
+        lines = sorted({group[0].location.line for group in spec.equal
+                        if (kind, names) in {r.key() for r in group}})
+        if other[0] != g:
+            where = spec.equalities_location
+            how = "held equal across groups" + (f" (line {where.line})" if where is not None else "")
+        else:
+            how = f"held equal by the 'equal' statement{'s' if len(lines) > 1 else ''} on line" + (
+                f"{'s' if len(lines) > 1 else ''} {' and '.join(map(str, lines))}")
+        why = (_why_not_free(spec, other, entries, effects, fixed_by, tied_to, multi, group_labels)
+               or f"fixed at {entries[other]['fixed']:g} in the first group, which sets the origin of the means")
+        return f"fixed through its tie to {label} ({how}), which is {why}"
+    if key in fixed_by:
+        ref = fixed_by[key]
+        what = ("to orient its exploratory block" if e["origin"] == "exploratory" else "")
+        return f"fixed at {value:g} by the 'fix' statement on line {ref.location.line}" + (f" {what}" if what else "")
+    if e["origin"] == "scale":
+        if names[0] in spec.factor_names:
+            return f"fixed at {value:g} to set the scale of '{names[0]}'"
+        return (f"fixed at {value:g} to give the latent response of the ordinal item '{names[0]}' its "
+                f"{'origin' if kind == 'intercept' else 'unit'} (Wu & Estabrook 2016)")
+    if kind == "mean":
+        # with groups, a start on a factor mean fixed at 0 can apply at another step of the invariance ladder, and
+        # in a population with groups (power of the invariance tests) it gives the group's mean
+        return None if multi else "fixed at 0: with one group a factor's mean is 0, which sets the origin of its scale"
+    return f"fixed at {value:g}"  # pragma: no cover - every fixed entry has one of the reasons above
 
 
 def _entry_kind(entry: dict) -> str:

@@ -10,6 +10,7 @@ from __future__ import annotations
 import io
 import math
 import re
+from dataclasses import dataclass
 
 from docx import Document
 from docx.enum.section import WD_ORIENT, WD_SECTION
@@ -48,15 +49,16 @@ def _rule(cell, edge: str, size: int = 8) -> None:
 # Typesetting for print (what a journal's production editor expects): a number or an interval is never broken
 # across lines.  A minus sign is the true minus (U+2212, after which no line breaks, where a hyphen-minus lets
 # '-' end a line); the spaces inside an interval and inside a numeric cell are non-breaking; numeric cells do
-# not wrap (w:noWrap).  Tables wider than the text are set in smaller type on a landscape page, and when even
-# that is too narrow, in parts of whole columns with the label column again (as the terminal does).
+# not wrap (w:noWrap).  Tables wider than the text are set as table_layout says: a matrix of the items first with
+# its rows numbered and a key, in smaller type on a portrait page, then on a landscape page, and when even that is
+# too narrow, in parts of whole columns with the label column again (as the terminal does).
 MINUS = re.compile(r"(?<![\w.\u2212])-(?=[\d.])")  # a hyphen before a number that is not inside a word
 INTERVAL = re.compile(r"\[[^\[\]]*\]")
 RELATION = re.compile(r"(?<=\S) ([=<>\u2264\u2265]) (?=[\d.\u2212-])")  # 'p = .186', 'N = 900': kept on one line
 NO_BREAK_SPACE = "\u00a0"
 BODY_SIZE = 10.0  # points: table type
+MATRIX_SIZE = 9.0  # points: the least type of a matrix of the items on a portrait page
 WIDE_SIZE = 8.0  # points: table type of a wide table, on a landscape page
-WIDE_COLUMNS = 8  # a table with more numeric columns than this is wide (correlation and residual matrices)
 CELL_PADDING = 2 * 5.4  # points: the left and right cell margins Word's default table style gives (0.075 inch each)
 WIDE_PADDING = 2 * 2.0  # points: the narrower cell margins of a wide table
 
@@ -255,11 +257,14 @@ def _note(document, text: str) -> None:
     paragraph.paragraph_format.space_after = Pt(12)
 
 
-def _grid(document, table: ReportTable, columns: list[int], widths: list[float], size: float, padding: float) -> None:
-    """One table of the report's rows in the ``columns`` given, with fixed column widths (points, cell margins
-    included): APA rules, numeric cells never wrapped, the header row repeated on every page, and every row kept
-    with the next so that a short table is not split from its caption or its note."""
-    rows = [table.columns] + list(table.rows)
+def _grid(document, table: ReportTable, columns: list[int], widths: list[float], size: float, padding: float,
+          kept: list[int] | None = None) -> None:
+    """One table of the report's rows (those numbered in ``kept``, default all) in the ``columns`` given, with fixed
+    column widths (points, cell margins included): APA rules, numeric cells never wrapped, the header row repeated
+    on every page, and every row kept with the next so that a short table is not split from its caption or its
+    note."""
+    kept = list(range(len(table.rows))) if kept is None else kept
+    rows = [table.columns] + [table.rows[i] for i in kept]
     grid = document.add_table(rows=len(rows), cols=len(columns))
     grid.alignment = WD_TABLE_ALIGNMENT.LEFT
     grid.autofit = False
@@ -275,6 +280,7 @@ def _grid(document, table: ReportTable, columns: list[int], widths: list[float],
     # each row's cells taken once from the row: Table.cell(r, k) walks every cell of the table on each call, which
     # made a 60-item matrix take minutes
     for r, (values, row) in enumerate(zip(rows, grid.rows)):
+        source = kept[r - 1] + 1 if r > 0 else 0  # the row's number among the report's rows (header 0)
         row_properties = row._tr.get_or_add_trPr()
         _property(row_properties, "w:cantSplit")
         if r == 0:
@@ -289,9 +295,9 @@ def _grid(document, table: ReportTable, columns: list[int], widths: list[float],
             paragraph.paragraph_format.keep_with_next = True
             run = paragraph.add_run(typeset(str(values[c]), numeric and r > 0))
             run.font.size = Pt(size)
-            if r > 0 and (r - 1, c) in faint:  # small loadings: grey, as the note says
+            if r > 0 and (source - 1, c) in faint:  # small loadings: grey, as the note says
                 run.font.color.rgb = FAINT_GREY
-            if r > 0 and (r - 1) in table.flagged:
+            if r > 0 and (source - 1) in table.flagged:
                 run.bold = True
                 run.font.color.rgb = PROBLEM_RED
             if numeric:
@@ -306,28 +312,95 @@ def _grid(document, table: ReportTable, columns: list[int], widths: list[float],
                 _rule(cell, "bottom")
 
 
-def wide(table: ReportTable) -> bool:
-    """A table with more numeric columns than fit the text width at the body type (correlation and residual
-    matrices): set on a landscape page in smaller type."""
-    return sum(a == "r" for a in table.align) > WIDE_COLUMNS
+@dataclass(frozen=True)
+class TableLayout:
+    """How a table is set in the Word report: on a portrait or a landscape page, at what type size and cell
+    padding (points), the table as set (a matrix of the items may name its rows by number only) and the key that
+    names each numbered item in the note ('' when the rows keep their names)."""
+
+    landscape: bool
+    size: float
+    padding: float
+    table: ReportTable
+    key: str = ""
+
+
+def _needed(table: ReportTable, size: float, padding: float) -> float:
+    """The least width in points a table takes set at ``size`` with ``padding``: each column's least (numbers
+    whole, text broken between words), and the row names of a matrix of the items whole on one line."""
+    wanted, least = _column_widths(table, size)
+    if table.matrix:
+        least = [wanted[0], *least[1:]]
+    return sum(w + padding for w in least)
+
+
+def table_layout(document, table: ReportTable) -> TableLayout:
+    """The one rule of how a table is set, written once: the first of these in which the table fits the text width
+    of its page (its columns at their least, _needed) is taken; a table that fits none comes in parts of whole
+    columns with its label column again (column_parts), set as the last.
+
+    1. a portrait page at the body type (10 pt) as the report has it;
+    2. a matrix of the items (residual correlations, the items' correlations): a portrait page at 10 pt with its
+       rows named by the items' numbers, a key in the note naming each (reporting.tables.matrix_key); then at
+       9 pt with narrow cell margins, with the names and then with the numbers;
+    3. a landscape page at 10 pt, then at 8 pt with narrow cell margins (then, for a matrix, numbered with a key).
+
+    A 10 x 10 matrix (a lower triangle of two-decimal correlations) so fits a portrait page at a readable size;
+    only a truly wide one turns the page or is cut into parts."""
+    section = document.sections[-1]
+    across = section.left_margin + section.right_margin
+    short_side, long_side = sorted((section.page_width, section.page_height))
+    room = {False: Emu(short_side - across).pt, True: Emu(long_side - across).pt}
+    keyed = T.matrix_key(table)
+    numbered, key = (keyed[0], "Items: " + "; ".join(f"{n} {name}" for n, name in keyed[1]) + ".") if keyed else \
+        (None, "")
+    choices = [TableLayout(False, BODY_SIZE, CELL_PADDING, table)]
+    if numbered is not None:
+        choices += [TableLayout(False, BODY_SIZE, CELL_PADDING, numbered, key),
+                    TableLayout(False, MATRIX_SIZE, WIDE_PADDING, table),
+                    TableLayout(False, MATRIX_SIZE, WIDE_PADDING, numbered, key)]
+    choices += [TableLayout(True, BODY_SIZE, CELL_PADDING, table), TableLayout(True, WIDE_SIZE, WIDE_PADDING, table)]
+    if numbered is not None:
+        choices.append(TableLayout(True, WIDE_SIZE, WIDE_PADDING, numbered, key))
+    return next((c for c in choices if _needed(c.table, c.size, c.padding) <= room[c.landscape]), choices[-1])
+
+
+def _square(table: ReportTable) -> bool:
+    """A lower triangle of a matrix (of the items, or of the factors): number columns each headed by its variable's
+    number, and in each row the cells filled up to a place and empty after it."""
+    numeric = [j for j, a in enumerate(table.align) if a == "r"]
+    if not numeric or not all(table.columns[j].isdigit() for j in numeric):
+        return False
+    filled = [[bool(row[j]) for j in numeric] for row in table.rows]
+    return all(cells == sorted(cells, reverse=True) for cells in filled)
 
 
 def _add_table(document, table: ReportTable, number: int) -> None:
     table = T.without_ids(table)  # a document for a manuscript: no respondents' ids
-    landscape = wide(table)
-    _set_orientation(document, landscape)
-    size, padding = (WIDE_SIZE, WIDE_PADDING) if landscape else (BODY_SIZE, CELL_PADDING)
+    layout = table_layout(document, table)
+    _set_orientation(document, layout.landscape)
+    table, size, padding = layout.table, layout.size, layout.padding
     wanted, least = _column_widths(table, size)
+    square = _square(table)
+    if square:  # a matrix's columns alike: each as wide as the widest, so that the triangle reads as one
+        numeric = [j for j, a in enumerate(table.align) if a == "r"]
+        widest, whole = max(wanted[j] for j in numeric), max(least[j] for j in numeric)
+        wanted = [widest if j in numeric else w for j, w in enumerate(wanted)]
+        least = [whole if j in numeric else w for j, w in enumerate(least)]
     room = _room(document)
     padded = [w + padding for w in least]
     parts = column_parts(padded, room, label_columns(table.align, padded, room, table.rows))
     for k, columns in enumerate(parts):
         _caption(document, f"Table {number}" + (" (continued)" if k else ""), table.title)
         widths = _fitted([wanted[j] + padding for j in columns], [least[j] + padding for j in columns], room)
-        _grid(document, table, columns, widths, size, padding)
+        # a later part of a matrix's lower triangle: the rows with a value in its columns (the rows above are empty)
+        numbers = [j for j in columns if table.align[j] == "r"]
+        kept = ([i for i, row in enumerate(table.rows) if any(row[j] for j in numbers)]
+                if square and k and numbers else None)
+        _grid(document, table, columns, widths, size, padding, kept)
         if k < len(parts) - 1:
             document.add_paragraph()
-    note = " ".join(text for text in (table.note, T.HEAT_LEGEND if table.heat else "") if text)
+    note = " ".join(text for text in (table.note, layout.key, T.HEAT_LEGEND if table.heat else "") if text)
     if note:
         _note(document, note)
     else:
@@ -400,7 +473,7 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
     section = ""
     for number, table in enumerate(report.tables, start=1):
         if table.section and table.section != section:
-            _set_orientation(document, wide(table))
+            _set_orientation(document, table_layout(document, table).landscape)
             document.add_heading(printable(table.section), level=2).paragraph_format.keep_with_next = True
         section = table.section
         _add_table(document, table, number)

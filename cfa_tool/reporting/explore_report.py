@@ -8,6 +8,7 @@ import numpy as np
 from cfa_tool.exploration.choices import FitStatistic
 from cfa_tool.exploration.rotation import ORIENTATION_RULE
 from cfa_tool.language.names import names_text
+from cfa_tool.options import Option
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.escape import html_text as esc
 from cfa_tool.reporting.numbers import num, unit
@@ -16,8 +17,6 @@ from cfa_tool.reporting.tables import GUIDE_NOTE, ReportTable, _table
 SPLIT_STATEMENT = ("The rows were divided at random into two halves (seed {seed}): the number of factors, the solution "
                    "and the draft model come from the exploration half ({first} rows) alone; the confirmation half "
                    "({second} rows) was not used to choose the model, only to fit it.")
-SAME_DATA_CAUTION = ("The draft model was chosen from these data; fitted to the same data its fit looks better than it "
-                     "is. Fit it to other data (or explore with --split SEED).")
 COUNT_SECTION = "How many factors"
 CONFIRMATION_SECTION = "Confirmation half: the draft model fitted"
 SCREE_ROWS = 20  # positions shown in the eigenvalue table and the scree plot
@@ -172,10 +171,16 @@ def solution_line(result) -> str:
     return f"The {ex.factors}-factor solution: {test}, SRMR {unit(f.srmr)}.{rotation}"
 
 
+def same_data_caution() -> str:
+    """The caution of an exploration without random halves, naming the option as the caller writes it."""
+    return ("The draft model was chosen from these data; fitted to the same data its fit looks better than it is. Fit "
+            f"it to other data, or explore one random half and fit the draft on the other ({Option.SPLIT}, a seed).")
+
+
 def split_lines(result) -> list[str]:
     s = result.split
     if s is None:
-        return [SAME_DATA_CAUTION]
+        return [same_data_caution()]
     lines = [SPLIT_STATEMENT.format(seed=s.seed, first=len(s.exploration_rows), second=len(s.confirmation_rows))]
     if s.note:
         lines.append(f"No confirmation: {s.note}.")

@@ -17,6 +17,7 @@ import pandas as pd
 
 from cfa_tool.assessment.admissibility import sample_size_problems
 from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.options import Interface, Option, interface
 from cfa_tool.exploration import (CountNote, CountRule, Exploration, ExploreSettings, ExtractionMethod, RotationMethod,
                                   RotationSpec, explore_correlations, from_ordinal_moments, from_sample_moments)
 from cfa_tool.data.answer_words import coding_json, coding_record
@@ -231,24 +232,28 @@ def _fit_dict(step: FitStep) -> dict:
 
 
 def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str], source: str) -> tuple[str, ...] | None:
-    """Items from a list of names, or from text: names separated by commas, where 'a..b' is every column of the
-    data from column a to column b in the file's order; a name that holds a comma is written in double quotes, as
-    the model language writes it (:func:`cfa_tool.language.names.read_name_list`)."""
+    """Items from a list of names, or from text: names separated by commas, where 'item1..item9' is a range the
+    model language counts (:func:`cfa_tool.language.names.range_names`: the ends are one name but for one number,
+    whatever the order of the columns in the file), as ``--ordinal`` and a model file count it, so that a range
+    names the same items in every place it is written; a name that holds a comma is written in double quotes, as the
+    model language writes it (:func:`cfa_tool.language.names.read_name_list`); a column whose name is the whole
+    piece ('a..b') is that column."""
+    from cfa_tool.language.names import range_names, read_name_list
+
     if text is None:
         return None
     if isinstance(text, (list, tuple)):
         if not all(isinstance(p, str) for p in text):
-            raise OptionError("items must be column names (text)")
+            raise OptionError(f"{Option.ITEMS} must be column names (text)")
         pieces = [(p, (p,) if p in columns else tuple(p.split(".."))) for p in text]
     elif isinstance(text, str):
-        from cfa_tool.language.names import read_name_list
-
-        pieces = read_name_list(text, "items")
+        pieces = read_name_list(text, str(Option.ITEMS))
         if not all(all(ends) for _, ends in pieces):
-            raise OptionError(f"items: give column names separated by commas (a..b for a span of columns; a name "
-                              f'that holds a comma in double quotes, "like, this"), not \'{printable(text)}\'')
+            raise OptionError(f"{Option.ITEMS}: give column names separated by commas (item1..item9 for a numbered "
+                              f'range; a name that holds a comma in double quotes, "like, this"), not '
+                              f"'{printable(text)}'")
     else:
-        raise OptionError(f"items must be column names, not {type(text).__name__}")
+        raise OptionError(f"{Option.ITEMS} must be column names, not {type(text).__name__}")
     out: list[str] = []
     for raw, ends in pieces:
         piece = raw if raw is not None else "..".join(ends)
@@ -262,25 +267,30 @@ def item_names(text: str | list[str] | tuple[str, ...] | None, columns: list[str
 
                 span = dotted_span(end)
                 if span is not None and all(e in columns for e in span.split("..")):
-                    raise OptionError(f"items: {source} has no column '{printable(end)}'; a span of columns is "
-                                      f"written with two dots: '{printable(span)}'")
+                    raise OptionError(f"{Option.ITEMS}: {source} has no column '{printable(end)}'; a range of "
+                                      f"numbered columns is written with two dots: '{printable(span)}'")
                 hint = comma_hint(end, columns)
                 guess = close_names(end, columns)
-                raise OptionError(f"items: {source} has no column '{printable(end)}'"
+                raise OptionError(f"{Option.ITEMS}: {source} has no column '{printable(end)}'"
                                   + (hint or (f"; did you mean '{printable(guess[0])}'?" if guess else "")))
         if len(ends) == 2:
-            lo, hi = columns.index(ends[0]), columns.index(ends[1])
-            if lo > hi:
-                raise OptionError(f"items: '{printable(piece)}': column '{printable(ends[0])}' comes after "
-                                  f"'{printable(ends[1])}' in {source}; write the span in the file's order")
-            span = columns[lo:hi + 1]
+            option = Option.ITEMS.given(piece)
+            span = range_names(ends[0], ends[1], lambda message: OptionError(
+                f"{option}: {message}" + ("; name columns that do not number alike one by one, separated by commas"
+                                          if "same name" in message or "with a number" in message else "")))
+            missing = [x for x in span if x not in columns]
+            if missing:
+                raise OptionError(f"{option}: the range counts '{printable(missing[0])}', which is not a column of "
+                                  f"{source}; a range counts numbered names ('q1..q9' is q1, q2, ..., q9), not the "
+                                  f"columns between its ends in the file: name the items one by one, separated by "
+                                  f"commas")
         elif len(ends) == 1:
             span = ends
         else:
-            raise OptionError(f"items: '{printable(piece)}' is not a column name or a span a..b")
+            raise OptionError(f"{Option.ITEMS}: '{printable(piece)}' is not a column name or a range item1..item9")
         for name in span:
             if name in out:
-                raise OptionError(f"items: '{printable(name)}' is named twice")
+                raise OptionError(f"{Option.ITEMS}: '{printable(name)}' is named twice")
             out.append(name)
     return tuple(out)
 
@@ -340,7 +350,7 @@ def _text_columns_phrase(frame: pd.DataFrame, taken: tuple[str, ...], codings: t
         general = next((c for c in codings if not c.items), None)
         unlisted = [printable(c) + (f" ('{printable(cell)}' in {row_naming(frame).one_row(row)})" if cell is not None else "")
                     for c in text[:10] for cell, row in [_first_unlisted(frame[c], general)]]
-        said += (" Left out as text holding none of the answers file's words (--answers): "
+        said += (f" Left out as text holding none of the answers file's words ({Option.ANSWERS}): "
                  + ", ".join(unlisted) + (f" and {len(text) - 10} more" if len(text) > 10 else "") + ".")
     elif text:
         said += f" Left out as text (not numbers): {listed(text)}; {_answers_file_hint(frame, text)}."
@@ -353,8 +363,8 @@ def _answers_file_hint(frame: pd.DataFrame, text: list) -> str:
     from cfa_tool.data.answer_scales import suggested_statement
 
     statement = next((s for s in (suggested_statement(frame[c].to_numpy(dtype=object)) for c in text) if s), None)
-    return ("answers recorded as words (yes/no, agree) are explored with an answers file (--answers FILE) whose "
-            "'answers' statement gives each word its code" + (f", such as the line: {statement}" if statement else ""))
+    return (f"answers recorded as words (yes/no, agree) are explored with an answers file "
+            f"({Option.ANSWERS.given('FILE')}) whose 'answers' statement gives each word its code" + (f", such as the line: {statement}" if statement else ""))
 
 
 def _first_unlisted(column: pd.Series, coding) -> tuple[object, int | None]:
@@ -429,19 +439,19 @@ def _default_items(first, columns: list[str], codings: tuple) -> tuple[tuple[str
     worded = _word_columns(frame, numeric, codings)
     chosen = tuple(c for c in columns if c in worded or (c in numeric and c not in ids + roles + coded))
     if codings and not worded:
-        raise OptionError(f"no column of {source} holds only the words of the answers file's statements (--answers); "
-                          f"name the items with --items to see which cells differ")
+        raise OptionError(f"no column of {source} holds only the words of the answers file's statements "
+                          f"({Option.ANSWERS}); name the items with {Option.ITEMS} to see which cells differ")
     said = f"every column of {source} that holds numbers" + (" or the words of the answers file" if worded else "")
-    note = (f"Items: {said} ({len(chosen)}); choose them with --items."
+    note = (f"Items: {said} ({len(chosen)}), which {Option.ITEMS} can change."
             + (f" Left out as row numbers or ids (every value a different whole number): "
                f"{', '.join(printable(c) for c in ids)}." if ids else "")
             + (f" Left out as codes of categories (every value has a value label of its own, as a "
                f"department's do; the items share their answer scale's labels): "
-               f"{', '.join(printable(c) for c in coded)} (name them in --items to explore them)."
+               f"{', '.join(printable(c) for c in coded)} (name them in {Option.ITEMS} to explore them)."
                if coded else "")
             + (" Left out by their names, as columns of the sampling design, ids, groups, the respondents' "
                "particulars or the survey's records rather than answers: " + ", ".join(f"{printable(c)} ({column_role(c)})" for c in roles)
-               + " (name them in --items to explore them)." if roles else "")
+               + f" (name them in {Option.ITEMS} to explore them)." if roles else "")
             + _text_columns_phrase(frame, numeric + worded, codings))
     return chosen, note, worded
 
@@ -453,7 +463,7 @@ def _refuse_too_few(chosen: tuple[str, ...], scan, codings: tuple) -> None:
         return
     found = (f"only {len(chosen)} of its columns hold{'s' if len(chosen) == 1 else ''} answers as numbers "
              f"({', '.join(printable(c) for c in chosen)})" if chosen else "none of its columns holds numbers")
-    hint = scan.sheet_hint() or "; name the items with --items"
+    hint = scan.sheet_hint() or f"; name the items with {Option.ITEMS}"
     if not codings and not scan.sheet_hint():
         frame = scan.frame
         numeric = _numeric_columns(frame)
@@ -494,9 +504,10 @@ def _refuse_text_items(frame: pd.DataFrame, chosen: tuple[str, ...], source: str
             where = (f"{source}: column '{printable(name)}' holds words ('{shown}' in {row_naming(column).one_row(row)}), "
                      f"and explore analyses numbers")
             if codings:
-                raise DataError(f"{where}: add the column to an 'answers' statement of the answers file (--answers) "
-                                f"with 'for', or take it out of --items")
-            raise DataError(f"{where}: give explore an answers file (--answers FILE) whose 'answers' statement says "
+                raise DataError(f"{where}: add the column to an 'answers' statement of the answers file "
+                                f"({Option.ANSWERS}) with 'for', or take it out of {Option.ITEMS}")
+            raise DataError(f"{where}: give explore an answers file ({Option.ANSWERS.given('FILE')}) whose 'answers' "
+                            f"statement says "
                             f"what each word means" + (f", such as the line: {statement}" if statement else "")
                             + "; or recode the answers as numbers")
 
@@ -517,7 +528,7 @@ def _explored_spec(chosen: tuple[str, ...], codings: tuple, answers, worded: tup
         for name in coding.items:
             if name.text not in chosen:
                 raise ModelError(f"'{printable(name.text)}' is not one of the items explored"
-                                 + ("; name it in --items, or take it out of the statement" if worded is None else
+                                 + (f"; name it in {Option.ITEMS}, or take it out of the statement" if worded is None else
                                     " (the data have no such column)"), name.location)
     factor = Factor(Name(factor_names(1, chosen)[0], where), tuple(Name(c, where) for c in chosen))
     spec = Spec(source=where.source, text="", title=None, factors=(factor,), answers=codings)
@@ -570,7 +581,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
             answers=None) -> ExploreResult:
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
-    ``items``: column names, or text 'a, b, c' with 'a..b' for a span of columns (default: every column that
+    ``items``: column names, or text 'a, b, c' with 'q1..q9' for a numbered range, counted as a model file counts
+    it (default: every column that
     holds numbers, except row numbers or ids and columns whose names say they are weights, clusters, strata, ids
     or groups, see :func:`column_role`); ``factors``: a whole number, or None / 'auto' for the recommended number; ``rotation``:
     varimax, quartimin (default), oblimin, geomin, promax, target (with ``target``: a matrix with NaN where
@@ -616,7 +628,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     if empty is not None and not by_default:  # the reading of the items would say 'take it out of the model'
         raise DataError(f"{source}: column '{printable(empty)}' has no answers"
                         + (" in the rows the row filters kept" if loaded.read_frame is not None else " at all")
-                        + " (every cell is empty); take it out of --items, or check the data file")
+                        + f" (every cell is empty); take it out of {Option.ITEMS}, or check the data file")
     if by_default:
         constant = [c for c in chosen if frame[c].nunique(dropna=True) <= 1]
         chosen = tuple(c for c in chosen if c not in constant)
@@ -628,8 +640,9 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     rotation_method = options.choice(RotationMethod, rotation, "the rotation")
     extraction_method = options.choice(ExtractionMethod, extraction, "the extraction")
     if rotation_method is RotationMethod.TARGET and target is None:
-        raise OptionError("target rotation needs a target: a target file (--target FILE; items by factors, 0 where a "
-                          "loading is aimed at zero, empty where free) or, from Python, a matrix (target=...)")
+        raise OptionError(f"target rotation needs a target: a target file ({Option.TARGET.given('FILE')}; items by "
+                          f"factors, 0 where a loading is aimed at zero, empty where free)"
+                          + (", or a matrix (target=...)" if interface() is Interface.PYTHON else ""))
     if target is not None and rotation_method is not RotationMethod.TARGET:
         raise OptionError(f"a target applies to target rotation only, not to {rotation_method.value}")
     target_file = None
@@ -643,7 +656,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
             notes.append(f"Factors: {requested}, the columns of the target file {target_file.source} "
                          f"({', '.join(target_file.factors)}).")
         elif requested != len(target_file.factors):
-            raise OptionError(f"--factors asks for {requested} factors, and the target file {target_file.source} has "
+            raise OptionError(f"{Option.FACTORS.given(requested)} asks for {requested} factors, and the target file "
+                              f"{target_file.source} has "
                               f"{len(target_file.factors)} factor columns")
     ordinal_items = _ordinal_items(ordinal, chosen)
     # values that look like no answers among the rows read (both halves of a split): first in every view

@@ -202,7 +202,7 @@ def test_design_id_and_group_columns_are_not_taken_for_items_and_are_named(hs_da
     note = next(n for n in result.notes if n.startswith("Items:"))
     assert ("Left out by their names, as columns of the sampling design, ids, groups, the respondents' particulars or "
             "the survey's records rather than answers: final_weight (weights), psu (clusters), grp (groups) (name them "
-            "in --items to explore them).") in note
+            "in items=... to explore them).") in note
     assert [column_role(n) for n in ("w", "w1", "wt 2023", "respondent_id", "stratum", "wlb2")] == \
         ["weights", None, "weights", "ids", "strata", None]
     # new-user trial s11: a clinic's age column was explored as an item

@@ -98,8 +98,8 @@ def test_explore_leaves_out_a_labelled_code_column_as_fit_reads_it_as_labels(tmp
     assert sorted(g.label for g in grouped.groups) == ["Grant-White", "Pasteur"]
     explored = cfa_tool.explore(path, factors=3, replications=5)
     assert explored.items == tuple(ITEMS)
-    assert any("Left out as codes of categories" in n and "school (name them in --items" in n for n in explored.notes)
-    chosen = cfa_tool.explore(path, items="x1..school", factors=3, replications=5)  # named: explored as asked
+    assert any("Left out as codes of categories" in n and "school (name them in items=..." in n for n in explored.notes)
+    chosen = cfa_tool.explore(path, items=[*ITEMS, "school"], factors=3, replications=5)  # named: explored as asked
     assert chosen.items == (*ITEMS, "school")
 
 

@@ -48,12 +48,15 @@ def test_items_with_commas_are_named_in_double_quotes(renamed):
 
     columns = [str(c) for c in renamed.columns]
     assert item_names(f'x1, "{CUBES}", "{PAPER}"', columns, "hs.csv") == ("x1", CUBES, PAPER)
-    assert item_names(f'"{CUBES}"..x5', columns, "hs.csv") == (CUBES, PAPER, "x4", "x5")
+    # a range counts numbered names as a model file does (not the columns between its ends): a quoted end without a
+    # number to count is an error that says so
+    with pytest.raises(OptionError, match="a range such as 'item1..item9' needs names with a number to count"):
+        item_names(f'"{CUBES}"..x5', columns, "hs.csv")
     assert item_names(f'"{CUBES} "', columns, "hs.csv") == (CUBES,)  # copied with the header's trailing space
     with pytest.raises(OptionError, match=r"no column 'Cubes'; a name that holds a comma is written in double quotes: "
                                           r"'\"Cubes, paper form \(timed\)\.\"'"):
         item_names(f"x1, {CUBES}", columns, "hs.csv")
-    result = cfa_tool.explore(renamed, items=f'"{CUBES}"..x9', factors=2)
+    result = cfa_tool.explore(renamed, items=f'"{CUBES}", "{PAPER}", x4..x9', factors=2)
     assert result.items[:2] == (CUBES, PAPER)
     from cfa_tool.reporting.explore_report import header_lines
 

@@ -3,7 +3,8 @@ every word and number its former layout of its own said: the words of that layou
 and Markdown file, kept for two seeded runs on the Holzinger & Swineford (1939) data in
 data/explore_words_before.json, are all found in the same format of the report model's views (layout may change).
 The scree plot's former axis values (five even splits of the range) were taken out of the kept words when the
-axis got round values."""
+axis got round values; the caution's '--split SEED' when the report names the option as the caller writes it
+(options.Option: 'split=...' from Python)."""
 
 from __future__ import annotations
 

@@ -16,7 +16,7 @@ import cfa_tool
 from cfa_tool.reporting import tables as T
 from cfa_tool.reporting.column_parts import column_parts, label_columns
 from cfa_tool.reporting.document import Report, ResultKind
-from cfa_tool.reporting.docx_report import WIDE_SIZE, report_docx, typeset
+from cfa_tool.reporting.docx_report import BODY_SIZE, WIDE_SIZE, report_docx, typeset
 from cfa_tool.reporting.fit_document import fit_report
 from cfa_tool.reporting.html_report import report_html
 from cfa_tool.reporting.remedies import Remedy
@@ -89,20 +89,22 @@ def test_numeric_cells_do_not_wrap_and_hold_no_breakable_minus_or_space(word, ri
     assert any("\u2212" in c.text for g in word.tables for row in g.rows for c in row.cells)  # negative values exist
 
 
-def test_wide_matrices_are_on_a_landscape_page_in_small_type_and_every_table_fits_its_page(word, rider):
+def test_the_matrices_of_twelve_items_fit_a_portrait_page_at_the_body_type_and_every_table_fits_its_page(word, rider):
+    # the item correlations and residual correlations of 12 items (11 number columns of two decimals) fit a
+    # portrait page at 10 pt with the items' names (docx_report.table_layout); they were set on landscape pages at
+    # 8 pt by their count of columns before
     placed = _tables_by_section(word)
     titles = [t.title for t in fit_tables(rider)]
-    wide = [k for k, t in enumerate(fit_tables(rider)) if t.key.startswith(("correlations_", "residual"))]
-    assert len(wide) == 2, titles
+    matrices = [k for k, t in enumerate(fit_tables(rider)) if t.key.startswith(("correlations_", "residual"))]
+    assert len(matrices) == 2, titles
     for k, (table, section) in enumerate(placed):
         assert _table_width(table) <= _text_width(section) + 0.5, titles[k]
-        landscape = section.orientation == WD_ORIENT.LANDSCAPE
-        assert landscape == (k in wide), titles[k]
-        assert (section.page_width > section.page_height) == landscape
-        if landscape:
+        assert section.orientation == WD_ORIENT.PORTRAIT and section.page_width < section.page_height, titles[k]
+        if k in matrices:
             sizes = {run.font.size for row in table.rows for c in row.cells for p in c.paragraphs for run in p.runs}
-            assert sizes == {Pt(WIDE_SIZE)}
-    # the figures and cautions after the tables are on portrait pages again
+            assert sizes == {Pt(BODY_SIZE)}
+            assert table.rows[2].cells[0].text == "2 short_wait"  # the rows keep their items' names
+    # the figures and cautions after the tables are on portrait pages
     assert word.sections[-1].orientation == WD_ORIENT.PORTRAIT
 
 
