@@ -318,11 +318,12 @@ class GroupResult:
         return {"factors": [clean(r.to_dict()) for r in self.reliability], "htmt": [clean(h.to_dict()) for h in self.htmt]}
 
 
-    def diagnostics_dict(self) -> dict:
+    def diagnostics_dict(self, naming: RowNaming = RowNaming.FILE_ROW) -> dict:
+        """``naming``: how the fit names its rows (DataSummary.row_naming), which each case row's JSON says."""
         return {
             "normalized_residuals": plain_array(self.normalized_residuals) if self.normalized_residuals is not None else None,
-            "unusual_cases": [clean(c.to_dict()) for c in self.unusual_cases],
-            "influential_cases": [clean(c.to_dict()) for c in self.influential_cases],
+            "unusual_cases": [clean(c.to_dict(naming)) for c in self.unusual_cases],
+            "influential_cases": [clean(c.to_dict(naming)) for c in self.influential_cases],
         }
 
     def residuals_dict(self, observed: tuple[str, ...]) -> dict:
@@ -481,7 +482,7 @@ class FitResult(Presentable):
                     "residuals": g.residuals_dict(self.observed),
                     "normality": clean(g.normality.to_dict()) if g.normality is not None else None,
                     "reliability": {**g.reliability_dict(), "scale": self.reliability_scale()},
-                    "diagnostics": g.diagnostics_dict(),
+                    "diagnostics": g.diagnostics_dict(self.data.row_naming),
                     **({"pair_rows": g.data.to_dict()["pair_rows"]} if g.data.pair_rows else {}),
                 }
                 for g in self.groups
@@ -493,7 +494,7 @@ class FitResult(Presentable):
             out["normality"] = clean(normality.to_dict()) if normality is not None else None
             out["reliability"] = self.groups[0].reliability_dict()
             out["reliability"]["scale"] = self.reliability_scale()
-            out["diagnostics"] = self.groups[0].diagnostics_dict()
+            out["diagnostics"] = self.groups[0].diagnostics_dict(self.data.row_naming)
         out["missing_data"] = clean(self.missing_data) if self.missing_data is not None else None
         if self.completely_at_random is not None:
             out["missing_data"] = {**(out["missing_data"] or {}),
