@@ -69,6 +69,9 @@ class LoadedData:
     #: where an option (--names-row) said the column names are, in the words of a message about a missing column
     #: ('' when the first row with values held them)
     names_row_hint: str = ""
+    #: the sampling design's weights of ``frame``'s rows, parsed once (data.sample_design.design_weights) for every
+    #: reader of them; None without weights or before they are parsed
+    weights: np.ndarray | None = None
 
     def column_hint(self) -> str:
         """Words for a message about a missing column: which sheet of a workbook of several was read, and the row

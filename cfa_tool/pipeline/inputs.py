@@ -25,7 +25,7 @@ from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows, read_data
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
-                                         refuse_shared_clusters)
+                                         design_weights, refuse_shared_clusters)
 from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_matrix, read_summary_file,
                                          summary_moments)
 from cfa_tool import options as opt
@@ -362,7 +362,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:
         _id_can_apply(spec, ordinal, fit_options)
-    loaded = analysed_odd_values(loaded, spec, group)
+    loaded = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
     by_row = ids_by_row_number(ids, frame)
     with odd_values_named(loaded):
         result = named_cases(_fit_read_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
@@ -458,15 +458,24 @@ def _id_can_apply(spec: Spec, ordinal, fit_options: FitOptions) -> None:
                       f"(scores take {Option.ID_COLUMN} to name each scored row)")
 
 
-def weighted_out_problems(frame: pd.DataFrame, group: str | None, design: DesignColumns | None) -> tuple:
+def with_design_weights(loaded: LoadedData, design: DesignColumns | None, spec: Spec, group: str | None) -> LoadedData:
+    """``loaded`` carrying its rows' weights, parsed and checked once (data.sample_design.design_weights), for the
+    check of the design and the caution about groups weighted out alike (unchanged without weights)."""
+    if design is None or design.weights is None:
+        return loaded
+    return replace(loaded, weights=design_weights(loaded.frame, design, spec.observed_names, group, loaded.source))
+
+
+def weighted_out_problems(loaded: LoadedData, group: str | None, design: DesignColumns | None) -> tuple:
     """A caution naming the groups every row of which has weight 0 under ``design``: they leave a multi-group
-    analysis, which the title's list of groups shows only by their absence."""
+    analysis, which the title's list of groups shows only by their absence.  The weights are those ``loaded``
+    carries (:func:`with_design_weights`); read from its frame when it carries none."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.data.sample_design import groups_weighted_out, weighted_out_words
 
     if design is None or design.weights is None:
         return ()
-    gone, _ = groups_weighted_out(frame, design.weights, group)
+    gone, _ = groups_weighted_out(loaded.frame, design.weights, group, loaded.weights)
     if not gone:
         return ()
     one = len(gone) == 1
@@ -489,7 +498,7 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
     if group is not None or (design is not None and (design.cluster or design.strata)):
         design_columns = ((("cluster", ("cluster", "clusters"), design.cluster),
                            ("strata", ("stratum", "strata"), design.strata)) if design is not None else ())
-        return (weighted_out_problems(loaded.frame, group, design)
+        return (weighted_out_problems(loaded, group, design)
                 + (group_case_problems(loaded.frame, group) if group is not None else ())
                 + tuple(p for part, unit, name in design_columns if name is not None
                         for p in group_case_problems(loaded.frame, name, part, unit))
@@ -927,7 +936,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     spec = with_ordinal_levels(spec, ordinal_items)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None:
-        frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
+        frame, design_notes = check_design(frame, design, spec.observed_names, group, source, loaded.weights)
         notes = list(notes) + design_notes
     if ordinal_items:
         with blas_threads_for(len(spec.observed_names)):
@@ -1399,9 +1408,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                            analysed=moments.analysed)
     spec, loaded, notes = read_inputs_with_notes(model, data, **read_options)
     frame, source = loaded.frame, loaded.source
-    loaded = analysed_odd_values(loaded, spec, group)
+    loaded = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
     if design is not None:
-        frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
+        frame, design_notes = check_design(frame, design, spec.observed_names, group, source, loaded.weights)
         notes += design_notes
     ordinal_items = ordinal_items_of(spec, None)
     if ordinal_items:  # the same data checks as the fit (categories, empty cells in groups, duplicates)
