@@ -23,6 +23,7 @@ from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows, read_data
+from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
                                          design_weights, refuse_shared_clusters)
@@ -68,13 +69,14 @@ def load_spec(model: str | os.PathLike | Spec) -> Spec:
 
 
 def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), keep=(), group: str | None = None,
-                       id_column: str | None = None, names_row: int | None = None) -> None:
+                       id_column: str | None = None, names_row: int | None = None, rename=None) -> None:
     """Options about rows and columns of raw data cannot apply to summary statistics: each is an
     error rather than silently ignored."""
     given = [f"{name} ({option})" for name, option, value in (
         ("a sheet", Option.SHEET, sheet), ("missing-value codes", Option.MISSING_CODES, missing_codes),
         ("row filters", Option.KEEP, keep), ("groups", Option.GROUP_COLUMN, group),
-        ("an id column", Option.ID_COLUMN, id_column), ("a row of column names", Option.NAMES_ROW, names_row))
+        ("an id column", Option.ID_COLUMN, id_column), ("a row of column names", Option.NAMES_ROW, names_row),
+        ("columns read under new names", Option.RENAME, rename))
         if value]
     if given:
         raise OptionError(f"{source} holds summary statistics, not rows of data, so {given[0]} cannot apply; "
@@ -115,11 +117,14 @@ def of_summary_statistics(result, moments, notes) -> object:
 
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               text_columns: tuple[str, ...] = (), items=None, listed=None, filters=(),
-              names_row: int | None = None, names_option: Option = Option.NAMES_ROW) -> LoadedData:
+              names_row: int | None = None, names_option: Option = Option.NAMES_ROW, rename=None,
+              rename_option: Option = Option.RENAME) -> LoadedData:
     """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to;
     ``filters``: the row filters applied next, which the notes do not suggest again; ``names_option``: the option
-    that gave ``names_row``)."""
+    that gave ``names_row``; ``rename``: columns read under new names, as ``rename_option`` gives them
+    (data.renamed_columns.column_renames), renamed before anything looks at the names)."""
     missing_codes = missing_codes_option(missing_codes)
+    renames = column_renames(rename, rename_option)
     if isinstance(data, pd.DataFrame):
         if sheet is not None:
             raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
@@ -128,15 +133,18 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"a row of column names ({names_option}) is read from a file, and the "
                               f"data are a data frame, whose columns have their names; leave it out")
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
+        frame = renamed_frame(frame, renames, "<data frame>", rename_option)
         frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
         frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items, filters)  # in the items only
-        return LoadedData(frame, "<data frame>", notes=blank + tuple(notes))
+        renamed = (rename_note(renames, "<data frame>", rename_option),) if renames else ()
+        return LoadedData(frame, "<data frame>", notes=renamed + blank + tuple(notes), renamed=renames)
     if isinstance(data, (str, Path)):
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items,
-                         listed=listed, filters=filters, names_row=names_row, names_option=names_option)
+                         listed=listed, filters=filters, names_row=names_row, names_option=names_option,
+                         renames=renames, renames_option=rename_option)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -160,25 +168,28 @@ def keep_option(keep) -> list[str]:
 
 def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: tuple[str, ...] = (),
                   items=None, filters=(), names_row: int | None = None,
-                  names_option: Option = Option.NAMES_ROW) -> LoadedData:
+                  names_option: Option = Option.NAMES_ROW, rename=None,
+                  rename_option: Option = Option.RENAME) -> LoadedData:
     """The data read for the model ``spec``, as every command reads them: a missing-value code on a declared scale
     refused, no-answer words and labels read as missing in ``items`` only (None: the model's items), and the words
-    its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next."""
+    its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next;
+    ``rename``: columns read under new names (:func:`load_data`)."""
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
     listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
     return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed,
-                     filters, names_row, names_option)
+                     filters, names_row, names_option, rename, rename_option)
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
                            text_columns: tuple[str, ...] = (), items=None,
-                           names_row: int | None = None) -> tuple[Spec, LoadedData, list[str]]:
+                           names_row: int | None = None, rename=None) -> tuple[Spec, LoadedData, list[str]]:
     """The model and the data read for it; no-answer words and labels are read as missing in ``items`` only (None:
-    the model's items), never in a group, id or design column."""
+    the model's items), never in a group, id or design column; ``rename``: columns read under new names (the
+    option --rename, data.renamed_columns), before anything looks at the names."""
     keep = keep_option(keep)
     spec = load_spec(model)
     filters = [parse_filter(k) for k in keep]
-    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row)
+    loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row, rename=rename)
     frame = loaded.frame
     pasted_matrix(frame, loaded.row_names, spec.observed_names, loaded.source)
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
@@ -279,7 +290,8 @@ def _no_group_notes(no_group: int, group: str) -> list[str]:
 
 def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None, *, group: str | None = None,
         reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
-        missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
+        missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), rename=None, covariance=None,
+        n_obs: int | None = None, means=None,
         variables: list[str] | None = None, matrix: str = "covariance", sds=None, divisor: str = "n-1",
         ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, id_column: str | None = None,
         weights: str | None = None, cluster: str | None = None, strata: str | None = None,
@@ -290,7 +302,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     ``data``: a DataFrame or a path to a data file (CSV/TSV, .xlsx, .sav/.por, .dta, or a
     ``.stats`` summary-statistics file); ``sheet`` picks an Excel sheet; ``names_row``: the row (of a sheet) or
     line (of a text file) that holds the column names, the rows above it not read; ``missing_codes``
-    are values that mean 'no answer'; ``keep`` are row filters such as 'district = north'.
+    are values that mean 'no answer'; ``keep`` are row filters such as 'district = north'; ``rename`` reads columns
+    under new names, {'SL3r': 'SL3_r'}, before anything else looks at the names (the model, ``group``, ``keep``,
+    ``weights``, ``id_column``, ``ordinal``), and every report says so.
     Instead of data: ``covariance`` (a matrix, or a DataFrame with variable names), ``n_obs``
     and optionally ``means``, ``variables``, ``matrix='correlation'`` with ``sds``, and
     ``divisor`` ('n-1' as published, or 'n').
@@ -330,7 +344,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             raise OptionError(f"{given[0]} goes with a covariance matrix (covariance=...), and none is given")
     if covariance is not None or summary_source(data):
         refuse_row_options("a covariance matrix" if covariance is not None else f"'{data}'", sheet, missing_codes, keep, group,
-                           id_column, names_row)
+                           id_column, names_row, rename)
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         if design is not None:
@@ -357,7 +371,8 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
-                                                 (id_column,) if isinstance(id_column, str) else (), names_row=names_row)
+                                                 (id_column,) if isinstance(id_column, str) else (), names_row=names_row,
+                                                 rename=rename)
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:
@@ -427,6 +442,8 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     (:func:`with_row_filters`), which it names too; how a text file was read (``loaded.reading``) and how its rows are
     named (a data frame's by their index labels, data.kept_rows.RowNaming)."""
     result = with_row_filters(result, loaded)
+    if loaded.renamed:
+        result = replace(result, data=replace(result.data, renamed=loaded.renamed))
     if loaded.reading is not None:
         result = replace(result, data=replace(result.data, reading=loaded.reading))
     if row_naming(loaded.frame) is not RowNaming.FILE_ROW:
@@ -1376,7 +1393,7 @@ def make_options(options: dict, own: tuple[str, ...] = ()) -> FitOptions:
 
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
           sheet: str | None = None, names_row: int | None = None, missing_codes: tuple[float, ...] = (),
-          keep: tuple[str, ...] | list[str] = (), reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
+          keep: tuple[str, ...] | list[str] = (), rename=None, reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
           strata: str | None = None, weight_kind: str | None = None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
     are complete, how many have gaps (kept by default) and each item's
@@ -1389,7 +1406,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
     from cfa_tool.model.parameters import build_parameter_table
 
     opt.group_column(group)
-    read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep, "names_row": names_row}
+    read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep, "names_row": names_row,
+                    "rename": rename}
     design = design_columns(weights, cluster, strata, weight_kind)
     if summary_source(data):
         refuse_row_options(f"'{data}'", group=group, **read_options)

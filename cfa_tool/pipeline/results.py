@@ -231,6 +231,8 @@ class DataSummary:
     reading: object | None = None
     # how the rows are named (data.kept_rows.RowNaming: a file's row numbers, a data frame's index labels)
     row_naming: RowNaming = RowNaming.FILE_ROW
+    # columns read under new names (data.renamed_columns.ColumnRename: --rename), which every view names
+    renamed: tuple = ()
 
     def __post_init__(self) -> None:
         """No count of rows is negative and none exceeds the rows read (errors.check_rows_counted): a report of
@@ -277,6 +279,8 @@ class DataSummary:
             out["missing_codes"] = list(self.missing_codes)
         if self.reading is not None:
             out["reading"] = self.reading.to_dict()
+        if self.renamed:
+            out["renamed_columns"] = [r.to_dict() for r in self.renamed]
         if self.analysed is not None:
             out["matrix_analysed"] = self.analysed.name.lower()
         if self.without_group:

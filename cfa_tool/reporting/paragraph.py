@@ -525,6 +525,17 @@ def _filtered(data) -> str:
             f"{_list([f.in_words() for f in data.row_filters])}")
 
 
+def renamed_sentence(data) -> str:
+    """'In survey.csv, the column named SL3r was analysed as SL3_r.': the columns read under new names (--rename),
+    whose new names the paragraph uses ('' when none were renamed)."""
+    renamed = getattr(data, "renamed", ())
+    if not renamed:
+        return ""
+    from cfa_tool.data.renamed_columns import rename_sentence
+
+    return rename_sentence(renamed, "the data frame" if data.source == "<data frame>" else data.source)
+
+
 def _without_group_clause(count: int, read: int, column: str | None) -> str:
     """'; 48 of 480 rows had no value in the group column (district) and were left out'."""
     where = f" ({_name(column)})" if column else ""
@@ -779,6 +790,9 @@ def methods_paragraph(result) -> str:
     coding = answer_coding_sentence(result.data)
     if coding:
         parts.insert(1, coding)
+    renamed = renamed_sentence(result.data)
+    if renamed:  # the names above are those the columns were read under
+        parts.insert(1, renamed)
     parts += _design_sentences([result])
     missingness = _completely_at_random_sentence(result)
     if missingness:

@@ -476,13 +476,16 @@ SHARED_ROWS = 0.2
 def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, validation: pd.DataFrame | str | Path,
               ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
               sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
-              validation_names_row: int | None = None, **options) -> Replication:
+              validation_names_row: int | None = None, rename=None, validation_rename=None,
+              **options) -> Replication:
     """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
     their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too);
     ``missing_codes`` apply to both files, as for ``fit``; ``sheet`` to those of the two that are Excel workbooks
     (a calibration workbook with a CSV validation file), an error when neither is one.  The row of column names is
     each file's own: ``names_row`` that of the calibration file, ``validation_names_row`` that of the validation
-    file (a workbook with question texts above the item codes beside a plain CSV file)."""
+    file (a workbook with question texts above the item codes beside a plain CSV file).  So are the columns read
+    under new names: ``rename`` those of the calibration file, ``validation_rename`` those of the validation file
+    ({'SL3r': 'SL3_r'}: a follow-up sample's file that names an item differently)."""
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
@@ -492,9 +495,10 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
         raise OptionError("the calibration and the validation data are the same file; replication checks the model in "
                           f"new data ({_one_file_instead()})")
     sheets = sheet_of_each((calibration, validation), sheet)
-    read = [load_data_for(spec, calibration, sheets[0], missing_codes, names_row=names_row),
+    read = [load_data_for(spec, calibration, sheets[0], missing_codes, names_row=names_row, rename=rename),
             load_data_for(spec, validation, sheets[1], missing_codes, names_row=validation_names_row,
-                          names_option=Option.VALIDATION_NAMES_ROW)]
+                          names_option=Option.VALIDATION_NAMES_ROW, rename=validation_rename,
+                          rename_option=Option.VALIDATION_RENAME)]
     for loaded in read:
         check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source, loaded.column_hint())
     read, notes = zip(*(_words_coded(spec, loaded, missing_codes) for loaded in read))
@@ -545,7 +549,7 @@ def _words_coded(spec: Spec, loaded, missing_codes=()) -> tuple:
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1,
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
-               **options) -> tuple[Replication, Replication]:
+               rename=None, **options) -> tuple[Replication, Replication]:
     """Random halves A and B (seeded) of the rows analysed (with continuous items and gaps, every row with an
     answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse."""
     seed = check.seed(seed)
@@ -554,7 +558,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
                                                      options if missing is None else {**options, "missing": missing},
                                                      SPLIT_HALF_KEYWORDS)
-    loaded = load_data_for(spec, data, sheet, missing_codes, names_row=names_row)
+    loaded = load_data_for(spec, data, sheet, missing_codes, names_row=names_row, rename=rename)
     check_columns(spec, [str(c) for c in loaded.frame.columns], loaded.source, loaded.column_hint())
     loaded, notes = _words_coded(spec, loaded, missing_codes)
     frame, source = loaded.frame, loaded.source
