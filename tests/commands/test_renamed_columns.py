@@ -16,11 +16,11 @@ import pandas as pd
 import pytest
 
 import cfa_tool
-from cfa_tool.cli import build_parser, main
+from cfa_tool.cli import build_parser
 from cfa_tool.data.readers import read_data
 from cfa_tool.data.renamed_columns import ColumnRename, column_renames
 from cfa_tool.errors import DataError, OptionError
-from tests.conftest import DATASETS, THREE_FACTORS, holzinger_swineford
+from tests.conftest import DATASETS, holzinger_swineford, run_cli
 
 HS_FILE = DATASETS / "holzinger_swineford_1939.csv"
 MODEL = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
@@ -28,12 +28,6 @@ MODEL = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7
 IN_FILE = {"x3": "x3r", "school": "School"}
 RENAME = "x3r=x3,School=school"
 NOTE = "columns 'x3r' read as 'x3', 'School' read as 'school'"
-
-
-def _run(argv, capsys):
-    code = main([str(a) for a in argv])
-    out = capsys.readouterr()
-    return code, out.out, out.err
 
 
 def _flat(text: str) -> str:
@@ -87,7 +81,7 @@ def test_every_command_that_reads_a_data_file_takes_the_option():
 def test_every_command_reads_the_renamed_columns_and_says_so_in_every_report(command, files, capsys):
     argv = [command] + [a.format(**files) for a in COMMANDS[command]]
     saved = files["tmp"] / "result.json"
-    code, out, err = _run(argv + ["--rename", RENAME, "--json", saved, "--markdown", files["tmp"] / "r.md"], capsys)
+    code, out, err = run_cli(argv + ["--rename", RENAME, "--json", saved, "--markdown", files["tmp"] / "r.md"], capsys)
     assert code == 0, err
     said = f"renamed.csv: {NOTE} (--rename {RENAME})"
     assert said in _flat(out)
@@ -95,7 +89,7 @@ def test_every_command_reads_the_renamed_columns_and_says_so_in_every_report(com
     assert said in (files["tmp"] / "r.md").read_text().replace("\\_", "_")
     # without the option the model's x3 (or the group column) is not a column of the file
     (files["tmp"] / "scores.csv").unlink(missing_ok=True)
-    code, _, err = _run(argv, capsys)
+    code, _, err = run_cli(argv, capsys)
     assert code == 2 and "renamed.csv" in err.splitlines()[0]
 
 
@@ -120,7 +114,7 @@ def test_a_renamed_file_gives_the_fit_of_the_original_names(files, capsys):
 
 def test_the_methods_paragraph_html_and_word_name_the_renamed_columns(files, capsys):
     html, docx, md = (files["tmp"] / name for name in ("r.html", "r.docx", "r.md"))
-    code, out, err = _run(["fit", files["model"], "--data", files["renamed"], "--rename", "x3r=x3", "--html", html,
+    code, out, err = run_cli(["fit", files["model"], "--data", files["renamed"], "--rename", "x3r=x3", "--html", html,
                            "--docx", docx, "--markdown", md], capsys)
     assert code == 0, err
     sentence = f"In {files['renamed']}, the column named x3r was analysed as x3."
@@ -185,13 +179,13 @@ def test_no_answer_words_in_a_renamed_item_are_read_as_its_own(tmp_path):
 ])
 def test_a_rename_that_cannot_apply_is_a_one_line_error(files, capsys, rename, words):
     before = files["renamed"].read_bytes()
-    code, out, err = _run(["fit", files["model"], "--data", files["renamed"], "--rename", rename], capsys)
+    code, out, err = run_cli(["fit", files["model"], "--data", files["renamed"], "--rename", rename], capsys)
     assert code == 2 and len(err.strip().splitlines()) == 1 and words in err, err
     assert files["renamed"].read_bytes() == before and not out
 
 
 def test_a_file_that_needs_no_rename_is_told_so(files, capsys):
-    code, _, err = _run(["fit", files["model"], "--data", HS_FILE, "--rename", "x3r=x3"], capsys)
+    code, _, err = run_cli(["fit", files["model"], "--data", HS_FILE, "--rename", "x3r=x3"], capsys)
     assert code == 2 and "there is no column 'x3r' in the file, which names the column 'x3' already" in err
 
 
@@ -211,7 +205,7 @@ def test_replicate_renames_each_file_by_its_own_option(files, capsys):
     calibration, validation = files["tmp"] / "cal.csv", files["tmp"] / "val.csv"
     hs.iloc[:150].rename(columns={"x5": "x5a"}).to_csv(calibration)
     hs.iloc[150:].rename(columns={"x3": "x3_r"}).to_csv(validation)
-    code, out, err = _run(["replicate", files["model"], "--calibration", calibration, "--validation", validation,
+    code, out, err = run_cli(["replicate", files["model"], "--calibration", calibration, "--validation", validation,
                            "--rename", "x5a=x5", "--validation-rename", "x3_r=x3"], capsys)
     assert code == 0, err
     assert "cal.csv: column 'x5a' read as 'x5' (--rename x5a=x5)" in _flat(out)
@@ -226,7 +220,7 @@ def test_replicate_renames_each_file_by_its_own_option(files, capsys):
     read = replicate(MODEL, str(calibration), str(validation), validation_rename={"x3_r": "x3"})
     assert read.calibration_result.fit.chi_square == pytest.approx(plain.calibration_result.fit.chi_square, abs=1e-10)
     assert read.loose.fit.chi_square == pytest.approx(plain.loose.fit.chi_square, abs=1e-10)
-    code, _, err = _run(["replicate", files["model"], "--data", calibration, "--validation-rename", "x3_r=x3"], capsys)
+    code, _, err = run_cli(["replicate", files["model"], "--data", calibration, "--validation-rename", "x3_r=x3"], capsys)
     assert code == 2 and "--validation-rename renames columns of the --validation file" in err
 
 
