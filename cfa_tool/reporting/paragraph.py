@@ -952,6 +952,9 @@ def comparison_paragraph(comparison) -> str:
     coding = answer_coding_sentence(first.data)  # the models read the answers one way (workflows.compare)
     if coding:
         parts.append(coding)
+    renamed = renamed_sentence(first.data)  # the models read one file
+    if renamed:
+        parts.append(renamed)
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
     parts += _design_sentences(list(results))
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
@@ -1122,6 +1125,9 @@ def invariance_paragraph(result, levels) -> str:
     coding = answer_coding_sentence(first.data)
     if coding:
         parts.append(coding)
+    renamed = renamed_sentence(first.data)
+    if renamed:
+        parts.append(renamed)
     parts += _design_sentences([s.result for s in steps])
     methods = sorted({s.versus_previous.method for s in steps[1:] if s.versus_previous is not None
                       and not s.versus_previous.not_computed}, key=_PREFERRED.index)

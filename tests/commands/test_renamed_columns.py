@@ -85,6 +85,8 @@ def test_every_command_reads_the_renamed_columns_and_says_so_in_every_report(com
     assert code == 0, err
     said = f"renamed.csv: {NOTE} (--rename {RENAME})"
     assert said in _flat(out)
+    if command in ("fit", "compare", "invariance"):  # their methods paragraphs name the columns renamed
+        assert "the columns named x3r and School were analysed as x3 and school." in _flat(out)
     assert said in json.dumps(json.loads(saved.read_text()), ensure_ascii=False)
     assert said in (files["tmp"] / "r.md").read_text().replace("\\_", "_")
     # without the option the model's x3 (or the group column) is not a column of the file
