@@ -115,7 +115,6 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     ``renames`` (data.renamed_columns, given by ``renames_option``): columns read under new names, renamed as soon as
     the names are read; ``items``, ``text_columns`` and ``listed`` name the columns by their new names."""
     path = Path(path)
-    in_file = (lambda names: names_in_file(renames, names)) if renames else (lambda names: names)
     suffix = path.suffix.lower()
     binary = suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES
     st = check_input_path(path, "data file", DataError, regular_only=binary)
@@ -131,7 +130,8 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         names: list[pd.Series] = []
         sheets: list[str] = []
         hidden: list = []
-        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, in_file(items), names_row, names_option), str(path),
+        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, names_in_file(renames, items), names_row,
+                                        names_option), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None, cautions=tuple(hidden),
                             sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else ())
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
@@ -142,8 +142,8 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         notes = []
         names = []
         reading: list[TextReading] = []
-        loaded = LoadedData(read_table(path, notes, names, in_file(tuple(text_columns)), in_file(items), names_row, reading,
-                                       names_option), str(path),
+        loaded = LoadedData(read_table(path, notes, names, names_in_file(renames, text_columns),
+                                       names_in_file(renames, items), names_row, reading, names_option), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None,
                             reading=reading[0] if reading else None)
         if loaded.reading is not None and not loaded.reading.plain():  # said when it is not plain UTF-8 with commas

@@ -125,9 +125,9 @@ def renamed_frame(frame: pd.DataFrame, renames: tuple[ColumnRename, ...], source
 
 def names_in_file(renames: tuple[ColumnRename, ...], names) -> tuple[str, ...] | None:
     """``names`` (new names: the model's items, an id column) as the file names those columns, for the readers that
-    look at columns before the renames (None stays None)."""
-    if names is None:
-        return None
+    look at columns before the renames (None stays None; without renames, ``names`` as given)."""
+    if names is None or not renames:
+        return names
     old = {r.new: r.old for r in renames}
     return tuple(old.get(str(n), n) for n in names)
 
