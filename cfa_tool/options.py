@@ -189,6 +189,8 @@ class Option(enum.Enum):
     TARGET = ("--target", "target")  # explore's target of rotation
     SPLIT = ("--split", "split")  # explore's seed of the random halves
     SIMULATED_MISSING = ("--missing", "missing")  # simulate's share of answers removed at random
+    RENAME = ("--rename", "rename", None, True)
+    VALIDATION_RENAME = ("--validation-rename", "validation_rename", None, True)  # replicate's validation file
 
     def __init__(self, flag: str, keyword: str, switch: str | None = None, listed: bool = False) -> None:
         self.flag = flag
@@ -207,6 +209,10 @@ class Option(enum.Enum):
         """The option given ``value`` (several values of a repeatable option: a list) as the caller would write it:
         '--incomplete-rows listwise' / "missing='listwise'", '--missing-codes 9,99' / 'missing_codes=[9, 99]',
         '--keep "district = north"' / "keep=['district = north']"."""
+        if isinstance(value, dict):  # names given new names (--rename): 'OLD=NEW,...' / "rename={'OLD': 'NEW'}"
+            if interface() is not Interface.COMMAND_LINE:
+                return f"{self.keyword}={value!r}"
+            value = ",".join(f"{_name_in_list(old)}={_name_in_list(new)}" for old, new in value.items())
         values = [str(v) for v in value] if isinstance(value, (list, tuple)) else [str(value)]
         if interface() is Interface.COMMAND_LINE:
             return " ".join(f"{self.flag} {_quoted(text)}" for text in values)
@@ -215,6 +221,12 @@ class Option(enum.Enum):
         if len(values) == 1 and _numbers(values[0]):
             values = [part.strip() for part in values[0].split(",")]
         return f"{self.keyword}=[{', '.join(text if _numbers(text) else repr(text) for text in values)}]"
+
+
+def _name_in_list(name: object) -> str:
+    """A name in an option's list of pairs: in double quotes when it holds a comma or '=' (or spaces at its ends)."""
+    text = str(name)
+    return f'"{text}"' if any(c in text for c in ',="') or text != text.strip() else text
 
 
 def _quoted(text: str) -> str:

@@ -23,6 +23,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from cfa_tool.assessment.normality import Whitened, whitened_rows
+from cfa_tool.data.kept_rows import ROW_NAMED_BY, RowNaming
 from cfa_tool.numerics import distributions as dist
 from cfa_tool.numerics.linalg import spd_inverse
 
@@ -37,13 +38,15 @@ class CaseDiagnostic:
     answered: int | None = None  # rows with gaps: the items the row answered (the distances' df); None: every item
     model_mahalanobis: float | None = None  # rows with gaps: the distance under the fitted model's moments
 
-    def to_dict(self) -> dict:
-        out = {"row": self.row, "mahalanobis": self.mahalanobis, "p_value": self.p_value,
-               "chi_square_share": self.chi_square_share}
+    def to_dict(self, naming: RowNaming = RowNaming.FILE_ROW) -> dict:
+        """The row as JSON: ``row`` is its number as ``naming`` (the fit's data.kept_rows.RowNaming) says, and
+        ``row_named_by`` (data.kept_rows.ROW_NAMED_BY) says which: the file's row or the data frame's index label."""
+        out = {"row": self.row, ROW_NAMED_BY: naming.json_word}
+        if self.id is not None:
+            out["id"] = self.id
+        out.update(mahalanobis=self.mahalanobis, p_value=self.p_value, chi_square_share=self.chi_square_share)
         if self.answered is not None:
             out.update(answered=self.answered, model_mahalanobis=self.model_mahalanobis)
-        if self.id is not None:
-            out = {"row": self.row, "id": self.id, **{k: v for k, v in out.items() if k != "row"}}
         return out
 
 

@@ -25,5 +25,5 @@ def run(args: argparse.Namespace) -> int:
 
     check_output(args, inputs_of(args))
     found = check(Path(args.model), args.data, group=args.group, sheet=args.sheet, names_row=args.names_row, first_data_row=args.first_data_row, missing_codes=args.missing_codes,
-                  keep=args.keep, **O.design_args(args))
+                  keep=args.keep, rename=args.rename, **O.design_args(args))
     return emit(args, found)

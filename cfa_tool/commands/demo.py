@@ -17,7 +17,7 @@ def run(args: argparse.Namespace) -> int:
 
     args.group = args.reference_group = args.sheet = args.names_row = args.first_data_row = None
     args.weights = args.weight_kind = args.cluster = args.strata = None
-    args.missing_codes, args.keep = (), []
+    args.missing_codes, args.keep, args.rename = (), [], []
     args.model = str(resource_dir("models") / "rider_three_factors.cfa")
     args.data = str(resource_dir("demo") / "rider_survey.csv")
     return fit.run(args)

@@ -43,6 +43,10 @@ def add_data_options(p: argparse.ArgumentParser, filters: bool = True) -> None:
                         "(default: the row under the column names)")
     p.add_argument("--missing-codes", metavar="LIST", type=_codes, default=(),
                    help="comma-separated values that mean 'no answer', e.g. -99,999")
+    p.add_argument("--rename", metavar="OLD=NEW", action="append", default=[],
+                   help="read the column OLD of the data file under the name NEW, e.g. SL3r=SL3_r, before anything "
+                        "else looks at the names (the model and every option that names a column); several "
+                        "separated by commas, or the option repeated; every report says so")
     if filters:
         p.add_argument("--keep", metavar="FILTER", action="append", default=[],
                        help="keep only rows that meet COLUMN OPERATOR VALUE, e.g. 'district = north' (repeatable)")

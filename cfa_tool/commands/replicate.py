@@ -24,6 +24,9 @@ def add_parser(sub) -> None:
     rep.add_argument("--validation-first-data-row", metavar="N", type=O.first_row_of_data, default=None,
                      help="the row (or line) of the --validation file where its answers start; --first-data-row gives "
                           "that of the --calibration file (or of --data)")
+    rep.add_argument("--validation-rename", metavar="OLD=NEW", action="append", default=[],
+                     help="read a column of the --validation file under another name, as --rename does for the "
+                          "--calibration file (or --data): each file's columns are renamed by its own option")
     O.add_ordinal_options(rep)
     O.add_incomplete_rows_option(rep, O.REFITS_AS_THE_FIT)
     O.refuse_design_options(rep, "replicate's test of one solution and cross-validation index compare the discrepancies of "
@@ -44,12 +47,16 @@ def run(args: argparse.Namespace) -> int:
     if args.validation_names_row is not None and not args.validation:
         raise OptionError("--validation-names-row names the row of column names of the --validation file, and no "
                           "--validation file is given; the row of --data is given with --names-row")
+    if args.validation_rename and not args.validation:
+        raise OptionError("--validation-rename renames columns of the --validation file, and no --validation file is "
+                          "given; the columns of --data are renamed with --rename")
     if args.validation_first_data_row is not None and not args.validation:
         raise OptionError("--validation-first-data-row names the first row of data of the --validation file, and no "
                           "--validation file is given; that of --data is given with --first-data-row")
     ordinal = {"ordinal": O.ordinal_arg(args.ordinal), "ordinal_estimator": args.ordinal_estimator,
                "missing": args.missing, "sheet": args.sheet, "missing_codes": args.missing_codes,
-               "names_row": args.names_row, "first_data_row": args.first_data_row, "keep": args.keep}
+               "names_row": args.names_row, "first_data_row": args.first_data_row, "keep": args.keep,
+               "rename": args.rename}
     if args.halves_file and not args.data:
         raise OptionError("--halves-file saves the random halves of one data file (--data), and --calibration and "
                           "--validation are not split")
@@ -61,7 +68,7 @@ def run(args: argparse.Namespace) -> int:
     elif args.calibration and args.validation:
         pair = (replicate(model, args.calibration, args.validation, validation_names_row=args.validation_names_row,
                           validation_first_data_row=args.validation_first_data_row,
-                          **ordinal),)
+                          validation_rename=args.validation_rename, **ordinal),)
     else:
         raise OptionError("give --calibration and --validation files, or --data FILE to split one data set in two halves")
     split = pair[0].split

@@ -23,18 +23,25 @@ SHEET_COLUMNS = "sheet_columns"
 ROW_NAMING = "row_naming"
 
 
+#: the key beside a row's number in JSON (the case rows' "row") that says what the number is: a
+#: ``RowNaming.json_word``, 'file_row' (the row of the file: a sheet's row, a text file's line) or 'index_label' (the
+#: label of a data frame's index)
+ROW_NAMED_BY = "row_named_by"
+
+
 class RowNaming(enum.Enum):
     """How messages and reports name a row of the data, declared once: a file's row by its number in the file (a
     sheet's row, a text file's line), a data frame's row by its index label (the label pandas shows and the scores
     table keeps), never by a count of our own."""
 
-    FILE_ROW = ("row", "rows", "Row")
-    INDEX_LABEL = ("index label", "index labels", "Index label")
+    FILE_ROW = ("row", "rows", "Row", "file_row")
+    INDEX_LABEL = ("index label", "index labels", "Index label", "index_label")
 
-    def __init__(self, one: str, several: str, heading: str) -> None:
+    def __init__(self, one: str, several: str, heading: str, json_word: str) -> None:
         self.one = one
         self.several = several
         self.heading = heading  # a table column's heading
+        self.json_word = json_word  # the value of ROW_NAMED_BY beside a row in JSON
 
     def of(self, count: int) -> str:
         """The word for ``count`` rows: 'row' / 'rows', 'index label' / 'index labels'."""

@@ -27,6 +27,7 @@ from cfa_tool.data.kept_rows import SHEET_COLUMNS, row_naming, rows_listed
 from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
 from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
+from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
 from cfa_tool.errors import DataError, printable
 from cfa_tool.options import Option
 from cfa_tool.input_files import check_input_path, input_bytes, line_count, utf16_text
@@ -69,6 +70,11 @@ class LoadedData:
     #: where an option (--names-row) said the column names are, in the words of a message about a missing column
     #: ('' when the first row with values held them)
     names_row_hint: str = ""
+    #: columns read under new names (data.renamed_columns.ColumnRename: --rename), which every report names
+    renamed: tuple = ()
+    #: the sampling design's weights of ``frame``'s rows, parsed once (data.sample_design.design_weights) for every
+    #: reader of them; None without weights or before they are parsed
+    weights: np.ndarray | None = None
 
     def column_hint(self) -> str:
         """Words for a message about a missing column: which sheet of a workbook of several was read, and the row
@@ -94,7 +100,8 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
               text_columns: tuple[str, ...] = (), items: Collection[str] | None = None,
               listed: dict[str, frozenset[str]] | None = None, filters: Collection = (),
               names_row: int | None = None, names_option: Option = Option.NAMES_ROW,
-              first_data_row: int | None = None) -> LoadedData:
+              first_data_row: int | None = None, renames: tuple[ColumnRename, ...] = (),
+              renames_option: Option = Option.RENAME) -> LoadedData:
     """Any supported file -> LoadedData; ``missing_codes`` are values that mean 'no answer'; ``text_columns``
     (an id column) are read from delimited text as written ('007' stays '007').  ``items``: the model's item
     columns, the only ones whose text cells and value labels that say no answer ('Not applicable', 9 'refused') are
@@ -107,7 +114,9 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
     names: replicate's validation file has its own).  ``first_data_row``: the row (or line) where the rows of data
     start, the rows between it and the column names not read (question texts under the item codes), given by
     :func:`first_data_option` of ``names_option``.  The frame's index numbers its rows as the file does (a sheet's rows, a
-    text file's lines: data.moments.file_rows_index); rows with no value in any column are left out with a note."""
+    text file's lines: data.moments.file_rows_index); rows with no value in any column are left out with a note.
+    ``renames`` (data.renamed_columns, given by ``renames_option``): columns read under new names, renamed as soon as
+    the names are read; ``items``, ``text_columns`` and ``listed`` name the columns by their new names."""
     path = Path(path)
     suffix = path.suffix.lower()
     binary = suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES
@@ -127,8 +136,8 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         names: list[pd.Series] = []
         sheets: list[str] = []
         hidden: list = []
-        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, items, names_row, names_option,
-                                        listed, first_data_row), str(path),
+        loaded = LoadedData(_read_excel(path, sheet, notes, names, sheets, hidden, names_in_file(renames, items), names_row,
+                                        names_option, _listed_in_file(renames, listed), first_data_row), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None, cautions=tuple(hidden),
                             sheets=tuple(sheets) if sheet is None and len(sheets) > 1 else ())
     elif suffix in SPSS_SUFFIXES + STATA_SUFFIXES:
@@ -139,13 +148,14 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
         notes = []
         names = []
         reading: list[TextReading] = []
-        loaded = LoadedData(read_table(path, notes, names, text_columns, items, names_row, reading, names_option,
-                                       listed, first_data_row), str(path),
+        loaded = LoadedData(read_table(path, notes, names, names_in_file(renames, text_columns),
+                                       names_in_file(renames, items), names_row, reading, names_option,
+                                       _listed_in_file(renames, listed), first_data_row), str(path),
                             notes=tuple(notes), row_names=names[0] if names else None,
                             reading=reading[0] if reading else None)
         if loaded.reading is not None and not loaded.reading.plain():  # said when it is not plain UTF-8 with commas
             loaded = replace(loaded, notes=(f"{path}: {loaded.reading.words()}",) + loaded.notes)
-    loaded = _composed_names(loaded)
+    loaded = _renamed(_composed_names(loaded), renames, renames_option)
     if suffix in EXCEL_SUFFIXES + SPSS_SUFFIXES + STATA_SUFFIXES:  # delimited text: read_table read them so
         loaded = replace(loaded, frame=blank_text_as_missing(loaded.frame, text_columns))
     frame, blank_note = drop_blank_rows(loaded.frame, str(path))
@@ -161,6 +171,14 @@ def read_data(path: str | Path, sheet: str | None = None, missing_codes: tuple[f
                                                 f"{names_option.given(names_row)} asks: give the {word} that holds the "
                                                 f"model's names, or leave the option out if the first {word} does")
     return loaded
+
+
+def _listed_in_file(renames, listed: dict[str, frozenset[str]] | None) -> dict[str, frozenset[str]] | None:
+    """``listed`` (each item's words an 'answers' statement codes, by the model's names) keyed by the names the file
+    gives those columns, for the readers that look at columns before the renames."""
+    if listed is None or not renames:
+        return listed
+    return dict(zip(names_in_file(renames, tuple(listed)), listed.values()))
 
 
 def with_no_answers_read(loaded: LoadedData, missing_codes: tuple[float, ...], where, text_columns: tuple[str, ...] = (),
@@ -297,6 +315,19 @@ def _composed_names(loaded: LoadedData) -> LoadedData:
     return replace(loaded, frame=loaded.frame.set_axis(names, axis=1),
                    variable_labels={composed(k): v for k, v in loaded.variable_labels.items()},
                    value_labels={composed(k): v for k, v in loaded.value_labels.items()})
+
+
+def _renamed(loaded: LoadedData, renames: tuple[ColumnRename, ...], option: Option) -> LoadedData:
+    """``loaded`` with the columns ``renames`` names read under their new names (data.renamed_columns): the frame,
+    its variable and value labels and the column-keyed notes of reading, with a note naming each rename."""
+    if not renames:
+        return loaded
+    frame = renamed_frame(loaded.frame, renames, loaded.source, option, (SHEET_COLUMNS, MARKED, SPELLINGS))
+    names = {r.old: r.new for r in renames}
+    return replace(loaded, frame=frame, renamed=renames,
+                   variable_labels={names.get(k, k): v for k, v in loaded.variable_labels.items()},
+                   value_labels={names.get(k, k): v for k, v in loaded.value_labels.items()},
+                   notes=loaded.notes + (rename_note(renames, loaded.source, option),))
 
 
 def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list | None = None,

@@ -312,10 +312,19 @@ def design_columns(weights: str | None = None, cluster: str | None = None, strat
     return DesignColumns(weights, cluster, strata, kind)
 
 
-def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: tuple[str, ...], group: str | None,
-                 source: str) -> tuple[pd.DataFrame, list[str]]:
-    """The rows to analyse (rows of weight zero left out, with a note) after every check of the design
-    columns; each problem is an error naming the column and a row."""
+def design_weights(frame: pd.DataFrame, columns: DesignColumns, model_variables: tuple[str, ...], group: str | None,
+                   source: str) -> np.ndarray | None:
+    """The weights of ``frame``'s rows, parsed once and checked (None without a weights column), after the checks of
+    the design's column names: what :func:`check_design` and the caution about groups weighted out
+    (pipeline.inputs.weighted_out_problems) then read instead of parsing the column again."""
+    _check_names(frame, columns, model_variables, group, source)
+    return _weights(frame, columns, source, _data_rows(frame)) if columns.weights is not None else None
+
+
+def _check_names(frame: pd.DataFrame, columns: DesignColumns, model_variables: tuple[str, ...], group: str | None,
+                 source: str) -> None:
+    """Each column of the design named once, present in ``frame``, and neither a model variable nor the group
+    column."""
     names = [n for _, n in columns.names]
     if len(set(names)) != len(names):
         twice = next(n for n in names if names.count(n) > 1)
@@ -329,10 +338,20 @@ def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: t
             raise OptionError(f"'{printable(name)}' is an item in the model and cannot also be the {what} column")
         if name == group:
             raise OptionError(f"'{printable(name)}' is the group column and cannot also be the {what} column")
+
+
+def check_design(frame: pd.DataFrame, columns: DesignColumns, model_variables: tuple[str, ...], group: str | None,
+                 source: str, weights: np.ndarray | None = None) -> tuple[pd.DataFrame, list[str]]:
+    """The rows to analyse (rows of weight zero left out, with a note) after every check of the design
+    columns; each problem is an error naming the column and a row.  ``weights``: the weights of ``frame``'s rows
+    as :func:`design_weights` parsed them (parsed here when not given)."""
+    _check_names(frame, columns, model_variables, group, source)
     rows = _data_rows(frame)
     notes: list[str] = []
     if columns.weights is not None:
-        w = _weights(frame, columns, source, rows)
+        w = weights if weights is not None else _weights(frame, columns, source, rows)
+        if len(w) != len(frame):
+            raise ValueError("the weights given are not those of the frame's rows")
         zero = w == 0
         if zero.all():
             raise DataError(f"{source}: every weight in column '{printable(columns.weights)}' is zero, so no row counts")

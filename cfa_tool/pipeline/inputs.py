@@ -23,9 +23,10 @@ from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
 from cfa_tool.data.readers import (HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows,
                                    first_data_option, read_data, with_no_answers_read)
+from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame
 from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
-                                         refuse_shared_clusters)
+                                         design_weights, refuse_shared_clusters)
 from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_matrix, read_summary_file,
                                          summary_moments)
 from cfa_tool import options as opt
@@ -69,14 +70,15 @@ def load_spec(model: str | os.PathLike | Spec) -> Spec:
 
 def refuse_row_options(source: str, sheet: str | None = None, missing_codes=(), keep=(), group: str | None = None,
                        id_column: str | None = None, names_row: int | None = None,
-                       first_data_row: int | None = None) -> None:
+                       first_data_row: int | None = None, rename=None) -> None:
     """Options about rows and columns of raw data cannot apply to summary statistics: each is an
     error rather than silently ignored."""
     given = [f"{name} ({option})" for name, option, value in (
         ("a sheet", Option.SHEET, sheet), ("missing-value codes", Option.MISSING_CODES, missing_codes),
         ("row filters", Option.KEEP, keep), ("groups", Option.GROUP_COLUMN, group),
         ("an id column", Option.ID_COLUMN, id_column), ("a row of column names", Option.NAMES_ROW, names_row),
-        ("a first row of data", Option.FIRST_DATA_ROW, first_data_row))
+        ("a first row of data", Option.FIRST_DATA_ROW, first_data_row),
+        ("columns read under new names", Option.RENAME, rename))
         if value]
     if given:
         raise OptionError(f"{source} holds summary statistics, not rows of data, so {given[0]} cannot apply; "
@@ -118,11 +120,14 @@ def of_summary_statistics(result, moments, notes) -> object:
 def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing_codes: tuple[float, ...] = (),
               text_columns: tuple[str, ...] = (), items=None, listed=None, filters=(),
               names_row: int | None = None, names_option: Option = Option.NAMES_ROW,
-              first_data_row: int | None = None) -> LoadedData:
+              first_data_row: int | None = None, rename=None, rename_option: Option = Option.RENAME) -> LoadedData:
     """The data as read (see data.readers.read_data; ``items``: the columns no-answer words and labels apply to;
     ``filters``: the row filters applied next, which the notes do not suggest again; ``names_option``: the option
-    that gave ``names_row``, and whose first row of data is ``first_data_row``)."""
+    that gave ``names_row``, and whose first row of data is ``first_data_row``; ``rename``: columns read under new
+    names, as ``rename_option`` gives them (data.renamed_columns.column_renames), renamed before anything looks at
+    the names)."""
     missing_codes = missing_codes_option(missing_codes)
+    renames = column_renames(rename, rename_option)
     if isinstance(data, pd.DataFrame):
         if sheet is not None:
             raise OptionError(f"a sheet ('{printable(sheet)}') picks a sheet of an Excel file, and the data are a data "
@@ -134,16 +139,19 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
             raise OptionError(f"a first row of data ({first_data_option(names_option)}) is read from a file, and the "
                               f"data are a data frame, whose rows are all data; leave it out")
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
+        frame = renamed_frame(frame, renames, "<data frame>", rename_option)
         frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
-        return with_no_answers_read(LoadedData(frame, "<data frame>", notes=blank), missing_codes, "<data frame>",
-                                    text_columns, items, listed, filters)  # as a file's cells are read
+        renamed = (rename_note(renames, "<data frame>", rename_option),) if renames else ()
+        return with_no_answers_read(LoadedData(frame, "<data frame>", notes=renamed + blank, renamed=renames),
+                                    missing_codes, "<data frame>", text_columns, items, listed,
+                                    filters)  # as a file's cells are read
     if isinstance(data, (str, Path)):
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items,
                          listed=listed, filters=filters, names_row=names_row, names_option=names_option,
-                         first_data_row=first_data_row)
+                         first_data_row=first_data_row, renames=renames, renames_option=rename_option)
     raise OptionError(f"data must be a data frame or a path to a data file, not {type(data).__name__}")
 
 
@@ -167,30 +175,34 @@ def keep_option(keep) -> list[str]:
 
 def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: tuple[str, ...] = (),
                   items=None, filters=(), names_row: int | None = None,
-                  names_option: Option = Option.NAMES_ROW, first_data_row: int | None = None) -> LoadedData:
+                  names_option: Option = Option.NAMES_ROW, first_data_row: int | None = None, rename=None,
+                  rename_option: Option = Option.RENAME) -> LoadedData:
     """The data read for the model ``spec``, as every command reads them: a missing-value code on a declared scale
     refused, no-answer words and labels read as missing in ``items`` only (None: the model's items), and the words
-    its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next."""
+    its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next;
+    ``rename``: columns read under new names (:func:`load_data`)."""
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
     listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
     return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed,
-                     filters, names_row, names_option, first_data_row)
+                     filters, names_row, names_option, first_data_row, rename, rename_option)
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
                            text_columns: tuple[str, ...] = (), items=None,
                            names_row: int | None = None, names_option: Option = Option.NAMES_ROW,
-                           first_data_row: int | None = None, name_the_file: bool = False
+                           first_data_row: int | None = None, name_the_file: bool = False, rename=None,
+                           rename_option: Option = Option.RENAME
                            ) -> tuple[Spec, LoadedData, list[str]]:
     """The model and the data read for it, as every command that reads rows reads each of its files; no-answer
     words and labels are read as missing in ``items`` only (None: the model's items), never in a group, id or design
     column; ``names_option``: the option that gave ``names_row`` (replicate's validation file has its own);
-    ``name_the_file``: the row filters' notes name the file (one of several files filtered alike)."""
+    ``name_the_file``: the row filters' notes name the file (one of several files filtered alike); ``rename``:
+    columns read under new names (the option --rename, data.renamed_columns), before anything looks at the names."""
     keep = keep_option(keep)
     spec = load_spec(model)
     filters = [parse_filter(k) for k in keep]
     loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row, names_option,
-                           first_data_row)
+                           first_data_row, rename, rename_option)
     frame = loaded.frame
     pasted_matrix(frame, loaded.row_names, spec.observed_names, loaded.source)
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
@@ -299,7 +311,8 @@ def _no_group_notes(no_group: int, group: str) -> list[str]:
 
 def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None, *, group: str | None = None,
         reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
-        first_data_row: int | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), covariance=None, n_obs: int | None = None, means=None,
+        first_data_row: int | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), rename=None,
+        covariance=None, n_obs: int | None = None, means=None,
         variables: list[str] | None = None, matrix: str = "covariance", sds=None, divisor: str = "n-1",
         ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, id_column: str | None = None,
         weights: str | None = None, cluster: str | None = None, strata: str | None = None,
@@ -312,7 +325,9 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
     line (of a text file) that holds the column names, the rows above it not read; ``first_data_row``: the row (or
     line) where the rows of data start, the rows between it and the column names not read (question texts under
     the item codes); ``missing_codes``
-    are values that mean 'no answer'; ``keep`` are row filters such as 'district = north'.
+    are values that mean 'no answer'; ``keep`` are row filters such as 'district = north'; ``rename`` reads columns
+    under new names, {'SL3r': 'SL3_r'}, before anything else looks at the names (the model, ``group``, ``keep``,
+    ``weights``, ``id_column``, ``ordinal``), and every report says so.
     Instead of data: ``covariance`` (a matrix, or a DataFrame with variable names), ``n_obs``
     and optionally ``means``, ``variables``, ``matrix='correlation'`` with ``sds``, and
     ``divisor`` ('n-1' as published, or 'n').
@@ -355,7 +370,7 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
             raise OptionError(f"{given[0]} goes with a covariance matrix (covariance=...), and none is given")
     if covariance is not None or summary_source(data):
         refuse_row_options("a covariance matrix" if covariance is not None else f"'{data}'", sheet, missing_codes, keep, group,
-                           id_column, names_row, first_data_row)
+                           id_column, names_row, first_data_row, rename)
         if reference_group is not None:
             raise OptionError("a reference group needs groups, and summary statistics describe one group")
         if design is not None:
@@ -386,14 +401,14 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
     spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
                                                  (id_column,) if isinstance(id_column, str) else (), names_row=names_row,
-                                                 first_data_row=first_data_row)
+                                                 first_data_row=first_data_row, rename=rename)
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:
         _id_can_apply(spec, ordinal, fit_options)
     if fit_options.missing_helpers:
         check_helper_columns(fit_options.missing_helpers, frame, source, spec, group, id_column, design)
-    loaded = analysed_odd_values(loaded, spec, group)
+    loaded = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
     by_row = ids_by_row_number(ids, frame)
     with odd_values_named(loaded):
         result = named_cases(_fit_read_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal,
@@ -458,6 +473,8 @@ def with_missing_reading(result, loaded: LoadedData, missing_codes=()):
     (:func:`with_row_filters`), which it names too; how a text file was read (``loaded.reading``) and how its rows are
     named (a data frame's by their index labels, data.kept_rows.RowNaming)."""
     result = with_row_filters(result, loaded)
+    if loaded.renamed:
+        result = replace(result, data=replace(result.data, renamed=loaded.renamed))
     if loaded.reading is not None:
         result = replace(result, data=replace(result.data, reading=loaded.reading))
     if row_naming(loaded.frame) is not RowNaming.FILE_ROW:
@@ -489,15 +506,24 @@ def _id_can_apply(spec: Spec, ordinal, fit_options: FitOptions) -> None:
                       f"(scores take {Option.ID_COLUMN} to name each scored row)")
 
 
-def weighted_out_problems(frame: pd.DataFrame, group: str | None, design: DesignColumns | None) -> tuple:
+def with_design_weights(loaded: LoadedData, design: DesignColumns | None, spec: Spec, group: str | None) -> LoadedData:
+    """``loaded`` carrying its rows' weights, parsed and checked once (data.sample_design.design_weights), for the
+    check of the design and the caution about groups weighted out alike (unchanged without weights)."""
+    if design is None or design.weights is None:
+        return loaded
+    return replace(loaded, weights=design_weights(loaded.frame, design, spec.observed_names, group, loaded.source))
+
+
+def weighted_out_problems(loaded: LoadedData, group: str | None, design: DesignColumns | None) -> tuple:
     """A caution naming the groups every row of which has weight 0 under ``design``: they leave a multi-group
-    analysis, which the title's list of groups shows only by their absence."""
+    analysis, which the title's list of groups shows only by their absence.  The weights are those ``loaded``
+    carries (:func:`with_design_weights`); read from its frame when it carries none."""
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
     from cfa_tool.data.sample_design import groups_weighted_out, weighted_out_words
 
     if design is None or design.weights is None:
         return ()
-    gone, _ = groups_weighted_out(frame, design.weights, group)
+    gone, _ = groups_weighted_out(loaded.frame, design.weights, group, loaded.weights)
     if not gone:
         return ()
     one = len(gone) == 1
@@ -520,7 +546,7 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
     if group is not None or (design is not None and (design.cluster or design.strata)):
         design_columns = ((("cluster", ("cluster", "clusters"), design.cluster),
                            ("strata", ("stratum", "strata"), design.strata)) if design is not None else ())
-        return (weighted_out_problems(loaded.frame, group, design)
+        return (weighted_out_problems(loaded, group, design)
                 + (group_case_problems(loaded.frame, group) if group is not None else ())
                 + tuple(p for part, unit, name in design_columns if name is not None
                         for p in group_case_problems(loaded.frame, name, part, unit))
@@ -960,7 +986,7 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
     spec = with_ordinal_levels(spec, ordinal_items)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None:
-        frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
+        frame, design_notes = check_design(frame, design, spec.observed_names, group, source, loaded.weights)
         notes = list(notes) + design_notes
     if ordinal_items and fit_options.missing_helpers:
         raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) enter the full-information likelihood of "
@@ -1488,7 +1514,7 @@ def make_options(options: dict, own: tuple[str, ...] = (), helpers: bool = False
 
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
           sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None,
-          missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
+          missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), rename=None, reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
           strata: str | None = None, weight_kind: str | None = None) -> CheckResult:
     """Parse and validate a model against data without fitting it; the result says how many rows
     are complete, how many have gaps (kept by default) and each item's
@@ -1501,7 +1527,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
 
     opt.group_column(group)
     read_options = {"sheet": sheet, "missing_codes": missing_codes, "keep": keep, "names_row": names_row,
-                    "first_data_row": first_data_row}
+                    "first_data_row": first_data_row,
+                    "rename": rename}
     design = design_columns(weights, cluster, strata, weight_kind)
     if summary_source(data):
         refuse_row_options(f"'{data}'", group=group, **read_options)
@@ -1520,9 +1547,9 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                            analysed=moments.analysed)
     spec, loaded, notes = read_inputs_with_notes(model, data, **read_options)
     frame, source = loaded.frame, loaded.source
-    loaded = analysed_odd_values(loaded, spec, group)
+    loaded = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
     if design is not None:
-        frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
+        frame, design_notes = check_design(frame, design, spec.observed_names, group, source, loaded.weights)
         notes += design_notes
     ordinal_items = ordinal_items_of(spec, None)
     if ordinal_items:  # the same data checks as the fit (categories, empty cells in groups, duplicates)

@@ -232,6 +232,8 @@ class DataSummary:
     reading: object | None = None
     # how the rows are named (data.kept_rows.RowNaming: a file's row numbers, a data frame's index labels)
     row_naming: RowNaming = RowNaming.FILE_ROW
+    # columns read under new names (data.renamed_columns.ColumnRename: --rename), which every view names
+    renamed: tuple = ()
 
     def __post_init__(self) -> None:
         """No count of rows is negative and none exceeds the rows read (errors.check_rows_counted): a report of
@@ -278,6 +280,8 @@ class DataSummary:
             out["missing_codes"] = list(self.missing_codes)
         if self.reading is not None:
             out["reading"] = self.reading.to_dict()
+        if self.renamed:
+            out["renamed_columns"] = [r.to_dict() for r in self.renamed]
         if self.analysed is not None:
             out["matrix_analysed"] = self.analysed.name.lower()
         if self.without_group:
@@ -319,11 +323,12 @@ class GroupResult:
         return {"factors": [clean(r.to_dict()) for r in self.reliability], "htmt": [clean(h.to_dict()) for h in self.htmt]}
 
 
-    def diagnostics_dict(self) -> dict:
+    def diagnostics_dict(self, naming: RowNaming = RowNaming.FILE_ROW) -> dict:
+        """``naming``: how the fit names its rows (DataSummary.row_naming), which each case row's JSON says."""
         return {
             "normalized_residuals": plain_array(self.normalized_residuals) if self.normalized_residuals is not None else None,
-            "unusual_cases": [clean(c.to_dict()) for c in self.unusual_cases],
-            "influential_cases": [clean(c.to_dict()) for c in self.influential_cases],
+            "unusual_cases": [clean(c.to_dict(naming)) for c in self.unusual_cases],
+            "influential_cases": [clean(c.to_dict(naming)) for c in self.influential_cases],
         }
 
     def residuals_dict(self, observed: tuple[str, ...]) -> dict:
@@ -484,7 +489,7 @@ class FitResult(Presentable):
                     "residuals": g.residuals_dict(self.observed),
                     "normality": clean(g.normality.to_dict()) if g.normality is not None else None,
                     "reliability": {**g.reliability_dict(), "scale": self.reliability_scale()},
-                    "diagnostics": g.diagnostics_dict(),
+                    "diagnostics": g.diagnostics_dict(self.data.row_naming),
                     **({"pair_rows": g.data.to_dict()["pair_rows"]} if g.data.pair_rows else {}),
                 }
                 for g in self.groups
@@ -496,7 +501,7 @@ class FitResult(Presentable):
             out["normality"] = clean(normality.to_dict()) if normality is not None else None
             out["reliability"] = self.groups[0].reliability_dict()
             out["reliability"]["scale"] = self.reliability_scale()
-            out["diagnostics"] = self.groups[0].diagnostics_dict()
+            out["diagnostics"] = self.groups[0].diagnostics_dict(self.data.row_naming)
         out["missing_data"] = clean(self.missing_data) if self.missing_data is not None else None
         if self.completely_at_random is not None:
             out["missing_data"] = {**(out["missing_data"] or {}),
@@ -513,8 +518,8 @@ class FitResult(Presentable):
 
     def scores(self, data, **options):
         """Factor scores of the rows of ``data`` (other data as well) with this fit's parameters; ``options``:
-        ``methods``, ``standard_errors``, ``id_column``, ``sheet``, ``missing_codes``, ``keep``
-        (see cfa_tool.workflows.factor_scores.score_with_fit)."""
+        ``methods``, ``standard_errors``, ``id_column``, ``sheet``, ``missing_codes``, ``keep``,
+        ``rename`` (see cfa_tool.workflows.factor_scores.score_with_fit)."""
         return scorer()(self, data, **options)
 
 

@@ -539,6 +539,17 @@ def _filtered(data) -> str:
             f"{_list([f.in_words() for f in data.row_filters])}")
 
 
+def renamed_sentence(data) -> str:
+    """'In survey.csv, the column named SL3r was analysed as SL3_r.': the columns read under new names (--rename),
+    whose new names the paragraph uses ('' when none were renamed)."""
+    renamed = getattr(data, "renamed", ())
+    if not renamed:
+        return ""
+    from cfa_tool.data.renamed_columns import rename_sentence
+
+    return rename_sentence(renamed, "the data frame" if data.source == "<data frame>" else data.source)
+
+
 def _without_group_clause(count: int, read: int, column: str | None) -> str:
     """'; 48 of 480 rows had no value in the group column (district) and were left out'."""
     where = f" ({_name(column)})" if column else ""
@@ -793,6 +804,9 @@ def methods_paragraph(result) -> str:
     coding = answer_coding_sentence(result.data)
     if coding:
         parts.insert(1, coding)
+    renamed = renamed_sentence(result.data)
+    if renamed:  # the names above are those the columns were read under
+        parts.insert(1, renamed)
     parts += _design_sentences([result])
     missingness = _completely_at_random_sentence(result)
     if missingness:
@@ -954,6 +968,9 @@ def comparison_paragraph(comparison) -> str:
     coding = answer_coding_sentence(first.data)  # the models read the answers one way (workflows.compare)
     if coding:
         parts.append(coding)
+    renamed = renamed_sentence(first.data)  # the models read one file
+    if renamed:
+        parts.append(renamed)
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
     parts += _design_sentences(list(results))
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
@@ -1124,6 +1141,9 @@ def invariance_paragraph(result, levels) -> str:
     coding = answer_coding_sentence(first.data)
     if coding:
         parts.append(coding)
+    renamed = renamed_sentence(first.data)
+    if renamed:
+        parts.append(renamed)
     parts += _design_sentences([s.result for s in steps])
     methods = sorted({s.versus_previous.method for s in steps[1:] if s.versus_previous is not None
                       and not s.versus_previous.not_computed}, key=_PREFERRED.index)

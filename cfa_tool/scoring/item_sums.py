@@ -70,7 +70,7 @@ def item_sums(rows: np.ndarray, keys: np.ndarray, lowest: np.ndarray, highest: n
     factor to sum, else the :class:`Unscored` reason it has none."""
     rows = np.asarray(rows, dtype=float)
     keys = np.asarray(keys, dtype=float)
-    n, (p, m) = len(rows), keys.shape
+    p, m = keys.shape
     if rows.shape[1] != p:
         raise ValueError(f"rows have {rows.shape[1]} columns; the keys have {p} items")
     summed = np.array([why is None for why in not_summed], dtype=bool)

@@ -591,7 +591,7 @@ class _Layout:
 def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str, *, reference_group: str | None = None,
           reference_mean: str | ReferenceMean = ReferenceMean.ZERO, flag_level: float = ALIGNMENT_FLAG_LEVEL,
           trials: int = ALIGNMENT_TRIALS, seed: int = 1, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
-          keep: tuple[str, ...] | list[str] = (), missing: str | None = None,
+          keep: tuple[str, ...] | list[str] = (), rename=None, missing: str | None = None,
           max_iterations: int = 500) -> AlignmentResult:
     """Group factor means and variances under approximate invariance by alignment (Asparouhov & Muthén 2014),
     from the configural model fitted with every factor's mean 0 and variance 1 in every group.
@@ -609,7 +609,8 @@ def align(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
     flag_level = check.probability("the level of the tests that flag non-invariant parameters", flag_level)
     trials = check.whole_number("the number of Monte Carlo trials", trials, 0, check.MAX_REPLICATIONS)
     seed = check.seed(seed)
-    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row)
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
+                                                 rename=rename)
     frame, source = loaded.frame, loaded.source
     notes = list(notes)
     spec = configural_spec(continuous_only(spec, "align"))

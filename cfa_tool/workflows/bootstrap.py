@@ -549,7 +549,7 @@ def _bca(draws: np.ndarray, point: float, a: float, level: float = 0.95) -> tupl
 def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 1000, seed: int = 1,
               bollen_stine: bool | None = None, bca: bool = True, workers: int | None = None, scheduler: str | None = None,
               progress=None, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
-              keep: tuple[str, ...] | list[str] = (), weights: str | None = None, cluster: str | None = None,
+              keep: tuple[str, ...] | list[str] = (), rename=None, weights: str | None = None, cluster: str | None = None,
               strata: str | None = None, weight_kind: str | None = None, ordinal: str | list[str] | None = None,
               ordinal_estimator: str | None = None, missing: str | None = None):
     """Fit the model, then bootstrap it: the result holds the fit (``.fit``) and its bootstrap.  A sampling design (``weights``,
@@ -557,7 +557,8 @@ def bootstrap(model: str | Path | Spec, data: pd.DataFrame | str | Path, replica
     resamples draw whole clusters within strata.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and
     ``ordinal_estimator`` as for ``fit``) are fitted by least squares, and each resample is refitted so."""
     replications, seed = bootstrap_options(replications, seed, workers)
-    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row)
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
+                                                 rename=rename)
     frame, source = loaded.frame, loaded.source
     one_group_only(spec, "the bootstrap resamples one group's rows")
     without_exploratory_blocks(spec, "bootstrap", "it resamples the parameters, and a block's rotated loadings are "

@@ -102,7 +102,7 @@ class Comparison(Presentable):
 
 def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, group: str | None = None,
             reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (),
-            keep: tuple[str, ...] | list[str] = (), ordinal: str | list[str] | None = None,
+            keep: tuple[str, ...] | list[str] = (), rename=None, ordinal: str | list[str] | None = None,
             ordinal_estimator: str | None = None, weights: str | None = None, cluster: str | None = None,
             strata: str | None = None, weight_kind: str | None = None, **options) -> Comparison:
     """Fit every model to the same rows and test each nested pair.
@@ -135,7 +135,7 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         fit_options = design_test(fit_options, design)
     group_column(group)
     if summary_source(data):
-        refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group, names_row=names_row, first_data_row=first_data_row)
+        refuse_row_options(f"'{data}'", sheet, missing_codes, keep, group, names_row=names_row, first_data_row=first_data_row, rename=rename)
         for spec in specs:
             refuse_ordinal_for_summary(spec, ordinal, None)  # an estimator without ordinal items is refused above
         if design is not None:
@@ -144,7 +144,8 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
         return _some_estimated(_compare_summary(specs, names, data, fit_options, group))
     refuse_different_codings(specs, names)
     _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep,
-                                              items={x for spec in specs for x in spec.observed_names}, names_row=names_row, first_data_row=first_data_row)
+                                              items={x for spec in specs for x in spec.observed_names}, names_row=names_row, first_data_row=first_data_row,
+                                              rename=rename)
     frame, source = loaded.frame, loaded.source
     coded = set(specs[0].observed_names)  # items of the later models only, each once: their answer words as codes
     for spec in specs[1:]:

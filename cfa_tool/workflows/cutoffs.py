@@ -336,14 +336,15 @@ def _cutoffs(correct: np.ndarray, mis: np.ndarray) -> dict[tuple[str, float], fl
 
 def cutoffs(model: str | Path | Spec, data: pd.DataFrame | str | Path, replications: int = 200, seed: int = 1,
             workers: int | None = None, scheduler: str | None = None, progress=None, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None,
-            missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
+            missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), rename=None,
             ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None):
     """Fit the model, then simulate model-specific fit-index cutoffs: the result holds the fit (``.fit``) and the
     cutoffs.  Ordinal items (an 'ordinal' statement, or ``ordinal`` and ``ordinal_estimator`` as for ``fit``) are
     fitted by least squares, the samples are simulated as ordinal answers and fitted so, and the cutoffs are of
     the adjusted indices the fit reports."""
     replications, seed = cutoff_options(replications, seed, workers)
-    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row)
+    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
+                                                 rename=rename)
     frame, source = loaded.frame, loaded.source
     one_group_only(spec, "the cutoffs are simulated for one group's model")
     if ordinal_items_of(spec, ordinal) or ordinal_estimator is not None:

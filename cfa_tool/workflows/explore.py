@@ -577,7 +577,7 @@ def _factor_choice(factors) -> int | None:
 def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = RotationMethod.QUARTIMIN,
             extraction: str | ExtractionMethod = ExtractionMethod.MAXIMUM_LIKELIHOOD, ordinal=None,
             split: int | None = None, sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes=(),
-            keep=(), replications: int = 100, seed: int = 0, threshold: float = 0.30, target=None,
+            keep=(), rename=None, replications: int = 100, seed: int = 0, threshold: float = 0.30, target=None,
             answers=None) -> ExploreResult:
     """How many factors, an exploratory solution and a draft model file for ``items`` of ``data``.
 
@@ -592,7 +592,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     the draft model on the other; ``replications`` and ``seed``: of parallel analysis and the rotation's random
     starts; ``threshold``: the loading at which an item counts on a factor in the draft model; ``answers``: the
     path of an answers file, whose 'answers' statements (as a model file writes them) code answers recorded as
-    words; the draft model carries them.  The data are read for the items as fit reads them for a model's.
+    words; the draft model carries them.  The data are read for the items as fit reads them for a model's;
+    ``rename`` reads columns under new names ({'SL3r': 'SL3_r'}) before ``items`` and the rest name them.
     """
     from cfa_tool import options
     from cfa_tool.pipeline import inputs as api
@@ -606,7 +607,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     # a first reading names the columns and chooses the default items; the data are then read for those items as
     # fit reads them for a model's (pipeline.inputs.read_inputs_with_notes): --missing-codes and words or labels
     # that say no answer in the item columns only, the answers file's words coded, row filters, odd values
-    scan = api.load_data(data, sheet, names_row=names_row, first_data_row=first_data_row)
+    scan = api.load_data(data, sheet, names_row=names_row, first_data_row=first_data_row, rename=rename)
     source = scan.source
     columns = [str(c) for c in scan.frame.columns]
     if len(set(columns)) != len(columns):
@@ -621,7 +622,7 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     if not by_default:
         _refuse_text_items(scan.frame.set_axis(columns, axis=1), chosen, source, codings)
     spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, missing_codes, api.keep_option(keep),
-                                                     names_row=names_row, first_data_row=first_data_row)
+                                                     names_row=names_row, first_data_row=first_data_row, rename=rename)
     frame = loaded.frame
     rows_read = len(loaded.read_frame) if loaded.read_frame is not None else len(frame)
     empty = next((c for c in chosen if not frame[c].notna().any()), None)

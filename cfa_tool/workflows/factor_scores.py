@@ -500,7 +500,7 @@ class ScoreResult(Presentable):
 
 def scores(model, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
            group: str | None = None, reference_group: str | None = None, sheet: str | None = None, names_row: int | None = None,
-           first_data_row: int | None = None, missing_codes=(), keep=(), ordinal=None, ordinal_estimator: str | None = None, weights: str | None = None,
+           first_data_row: int | None = None, missing_codes=(), keep=(), rename=None, ordinal=None, ordinal_estimator: str | None = None, weights: str | None = None,
            cluster: str | None = None, strata: str | None = None, weight_kind: str | None = None,
            least_answered: float | None = None, **options) -> ScoreResult:
     """Fit ``model`` to ``data`` (as :func:`cfa_tool.fit` does, same options) and score every row.
@@ -537,7 +537,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     fit_options = api.make_options(options, SCORES_KEYWORDS)
     spec, loaded, notes = api.read_inputs_with_notes(model, data, sheet, missing_codes, keep,
                                                      (id_column,) if isinstance(id_column, str) else (),
-                                                     names_row=names_row, first_data_row=first_data_row)
+                                                     names_row=names_row, first_data_row=first_data_row, rename=rename)
     api.without_exploratory_blocks(spec, "scores", "its factors' scores would be those of the unrotated block")
     frame, source = loaded.frame, loaded.source
     read_frame = _rows_as_read(loaded)
@@ -747,7 +747,8 @@ def refuse_unknown_scale(data, what: str) -> None:
 
 def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bool = False, id_column: str | None = None,
                    sheet: str | None = None, missing_codes=(), keep=(), names_row: int | None = None,
-                   least_answered: float | None = None, first_data_row: int | None = None) -> ScoreResult:
+                   least_answered: float | None = None, first_data_row: int | None = None,
+                   rename=None) -> ScoreResult:
     """Scores of the rows of ``data`` with the parameters of an earlier fit (``result``): a scale calibrated in one
     sample scores another.  With groups, ``data`` needs the fit's group column, and each row is scored with its
     group's parameters (a row of a group the fit does not have gets no scores).  The quality figures are those of
@@ -764,11 +765,12 @@ def score_with_fit(result: FitResult, data, *, methods=None, standard_errors: bo
     rule = item_rule(chosen, least_answered)
     models, labels = models_of_fit(result)
     return _score_other_data(result, _spec_of(result), models, labels, data, chosen, standard_errors, id_column, sheet,
-                             missing_codes, keep, names_row, first_data_row, rule)
+                             missing_codes, keep, names_row, first_data_row, rule, rename)
 
 
 def _score_other_data(result, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
-                      keep, names_row=None, first_data_row=None, rule: ItemSumRule | None = None) -> ScoreResult:
+                      keep, names_row=None, first_data_row=None, rule: ItemSumRule | None = None,
+                      rename=None) -> ScoreResult:
     """Rows of ``data`` scored with the given models (one per group of the earlier fit ``result``)."""
     from cfa_tool.pipeline import inputs as api
     from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
@@ -777,7 +779,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     carried = tuple(c for c in result.data.missing_codes if c not in given)  # the earlier fit's, read so here too
     spec, loaded, notes = api.read_inputs_with_notes(spec, data, sheet, given + carried, keep,
                                                      (id_column,) if isinstance(id_column, str) else (),
-                                                     names_row=names_row, first_data_row=first_data_row)
+                                                     names_row=names_row, first_data_row=first_data_row, rename=rename)
     frame, source = loaded.frame, loaded.source
     read_frame = _rows_as_read(loaded)
     if not len(read_frame):
@@ -1201,7 +1203,7 @@ def ordinal_models_of_estimates(spec, rows, data, labels: tuple[str, ...] | None
 def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_errors: bool = False,
                          id_column: str | None = None, sheet: str | None = None, missing_codes=(), keep=(),
                          names_row: int | None = None, least_answered: float | None = None,
-                         first_data_row: int | None = None) -> ScoreResult:
+                         first_data_row: int | None = None, rename=None) -> ScoreResult:
     """Scores of the rows of ``data`` with the parameters of a fit saved as JSON (``fit --json``) of ``model``."""
     from cfa_tool.assessment.admissibility import refuse_inadmissible_saved_fit
     from cfa_tool.data.answer_words import with_saved_coding
@@ -1219,7 +1221,7 @@ def score_with_saved_fit(model, saved_path, data, *, methods=None, standard_erro
     rule = item_rule(chosen, least_answered)
     models, labels = models_of_saved_fit(spec, saved)
     return _score_other_data(saved, spec, models, labels, data, chosen, standard_errors, id_column, sheet, missing_codes,
-                             keep, names_row, first_data_row, rule)
+                             keep, names_row, first_data_row, rule, rename)
 
 
 def _spec_of(result: FitResult):

@@ -292,6 +292,7 @@ class InvarianceResult(Presentable):
 def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str,
                reference_group: str | None = None, partial: str = "none", alpha: float | None = None,
                sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None, missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (),
+               rename=None,
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None,
                decide_by: str | DecisionRule = DecisionRule.DIFFERENCE_TEST, weights: str | None = None,
                cluster: str | None = None, strata: str | None = None, weight_kind: str | None = None,
@@ -322,7 +323,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     alpha = check.probability("alpha (the level of the difference tests)", 0.05 if alpha is None else alpha)
     fit_options = replace(make_options(options, INVARIANCE_KEYWORDS), diagnostics=False)
     design = design_columns(weights, cluster, strata, weight_kind)
-    spec, loaded, read_notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row)
+    spec, loaded, read_notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep, names_row=names_row, first_data_row=first_data_row,
+                                                 rename=rename)
     frame, source = loaded.frame, loaded.source
     # values that look like no answers, among the rows with a group label: first among the cautions
     analysed = analysed_odd_values(loaded, spec, group)

@@ -539,6 +539,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
               sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
               validation_names_row: int | None = None, first_data_row: int | None = None,
               validation_first_data_row: int | None = None, keep: tuple[str, ...] | list[str] = (),
+              rename=None, validation_rename=None,
               **options) -> Replication:
     """Calibrate on one data set, validate on another.  ``ordinal``, ``ordinal_estimator``: ordinal items and
     their least-squares estimator, as for ``fit`` (an 'ordinal' statement in the model declares them too);
@@ -547,7 +548,9 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     each file's own: ``names_row`` that of the calibration file, ``validation_names_row`` that of the validation
     file (a workbook with question texts above the item codes beside a plain CSV file), and so is the row where its
     data start (``first_data_row``, ``validation_first_data_row``).  ``keep``: row filters ('Finished = True'),
-    applied to each file, as for ``fit``; each file's notes say how many rows they kept."""
+    applied to each file, as for ``fit``; each file's notes say how many rows they kept.  So are the columns read under new names:
+    ``rename`` those of the calibration file, ``validation_rename`` those of the validation file ({'SL3r': 'SL3_r'}:
+    a follow-up sample's file that names an item differently)."""
     spec = load_spec(model)
     one_group_only(spec, "replication fits one group's model in each sample")
     ordinal_items, method, pairwise = _ordinal_setup(spec, ordinal, ordinal_estimator,
@@ -561,10 +564,11 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     # that look like no answers): a hostile trial found replicate analysing answers beyond a declared scale that fit
     # refuses; the row filters apply to each file, their notes naming it
     read, notes = zip(read_inputs_with_notes(spec, calibration, sheets[0], missing_codes, keep, names_row=names_row,
-                                             first_data_row=first_data_row, name_the_file=True)[1:],
+                                             first_data_row=first_data_row, name_the_file=True, rename=rename)[1:],
                       read_inputs_with_notes(spec, validation, sheets[1], missing_codes, keep,
                                              names_row=validation_names_row, names_option=Option.VALIDATION_NAMES_ROW,
-                                             first_data_row=validation_first_data_row, name_the_file=True)[1:])
+                                             first_data_row=validation_first_data_row, name_the_file=True,
+                                             rename=validation_rename, rename_option=Option.VALIDATION_RENAME)[1:])
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
     screens = list(read)
@@ -603,7 +607,7 @@ def _left_out(dropped: int, read: int, source: str, missing, ordinal_items) -> t
 def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: int = 1,
                ordinal: str | list[str] | None = None, ordinal_estimator: str | None = None, missing: str | None = None,
                sheet: str | None = None, missing_codes: tuple[float, ...] = (), names_row: int | None = None,
-               first_data_row: int | None = None, keep: tuple[str, ...] | list[str] = (),
+               first_data_row: int | None = None, keep: tuple[str, ...] | list[str] = (), rename=None,
                **options) -> tuple[Replication, Replication]:
     """Random halves A and B (seeded) of the rows analysed (with continuous items and gaps, every row with an
     answer, as fit keeps them; else the complete rows): calibrate on A and validate on B, then the reverse.
@@ -616,7 +620,7 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                                                      options if missing is None else {**options, "missing": missing},
                                                      SPLIT_HALF_KEYWORDS)
     _, loaded, notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep, names_row=names_row,
-                                              first_data_row=first_data_row)  # as fit reads it
+                                              first_data_row=first_data_row, rename=rename)  # as fit reads it
     notes = tuple(notes)
     frame, source = loaded.frame, loaded.source
     screen = loaded

@@ -84,3 +84,47 @@ def test_a_frame_not_indexed_by_whole_numbers_keeps_rows_named_by_position(rider
     frame.loc["r3", ITEMS] = np.nan
     note = next(w for w in cfa_tool.fit(rider_model, frame).warnings if "answered none of the model variables" in w)
     assert note.endswith("left out (row 4)")
+
+
+def test_the_json_case_rows_say_what_their_row_numbers_count(indexed, rider_model, tmp_path, capsys):
+    """The JSON case rows' "row" held a data frame's index label or a file's row number with nothing saying which;
+    "row_named_by" says it beside each row.  The reference is pandas again: the frame's labels (``frame.loc``), and
+    the line pandas writes label L on (L - 100 + 2).  A result saved without the field (as versions before it
+    wrote them) is still read by 'cfa-tool report', the same report as with it."""
+    import json
+
+    from tests.conftest import run_cli
+
+    frame = indexed.drop(index=[105, 110])
+    by_frame = cfa_tool.fit(rider_model, frame).to_dict()["diagnostics"]
+    path = tmp_path / "riders.csv"
+    frame.reset_index(drop=True).to_csv(path, index=False)
+    model = tmp_path / "riders.cfa"
+    model.write_text(rider_model)
+    saved = tmp_path / "fit.json"
+    code, _, err = run_cli(["fit", model, "--data", path, "--json", saved], capsys)
+    assert code == 0, err
+    payload = json.loads(saved.read_text())
+    by_file = payload["diagnostics"]
+    lines = {label: k + 2 for k, label in enumerate(frame.index)}
+    for kind in ("unusual_cases", "influential_cases"):
+        assert by_frame[kind] and all(c["row_named_by"] == "index_label" for c in by_frame[kind])
+        assert all(c["row_named_by"] == "file_row" for c in by_file[kind])
+        assert {c["row"] for c in by_frame[kind]} <= set(frame.index)
+        assert [lines[c["row"]] for c in by_frame[kind]] == [c["row"] for c in by_file[kind]]
+    reports = []
+    for name, content in (("new", payload), ("older", _without_key(payload, "row_named_by"))):
+        written = tmp_path / f"{name}.json"
+        written.write_text(json.dumps(content))
+        code, out, err = run_cli(["report", written, "--markdown", "-"], capsys)
+        assert code == 0, err
+        reports.append(out)
+    assert "row_named_by" not in json.dumps(_without_key(payload, "row_named_by")) and reports[0] == reports[1]
+
+
+def _without_key(value, key: str):
+    if isinstance(value, dict):
+        return {k: _without_key(v, key) for k, v in value.items() if k != key}
+    if isinstance(value, list):
+        return [_without_key(v, key) for v in value]
+    return value

@@ -255,7 +255,7 @@ def _error_line(err: str) -> str:
     (b"\xff\xfe\x00", "is not UTF-8 text"),
     (b'{"a": 1}', "not a result written by cfa-tool"),
     (b"[1, 2]", "not a result written by cfa-tool"),
-    (b'{"tool": "cfa-tool", "version": "0.9", "fit": {}}', "holds no 'report' part"),
+    (b'{"tool": "cfa-tool", "version": "0.1.0", "fit": {}}', "holds no 'report' part"),
     (b'{"tool": "cfa-tool", "version": "0.1.0", "report": {"kind": "fit", "title": "x"}}', "incomplete or changed by hand"),
     (b'{"tool": "cfa-tool", "version": "0.1.0", "report": {"kind": "nonsense", "title": "x", "notice": null, "lines": [],'
      b' "tables": []}}', "incomplete or changed by hand"),

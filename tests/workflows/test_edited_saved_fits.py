@@ -299,13 +299,18 @@ def test_scores_refuse_a_model_file_whose_reversed_items_differ_from_the_fit(tmp
 
 
 @pytest.mark.parametrize("version, words", [
-    ("9.0.0", "written by cfa-tool 9.0.0, and this is cfa-tool 0.1.0, which reads results written by version 0.x or "
+    ("9.0.0", "written by cfa-tool 9.0.0, and this is cfa-tool 0.1.0, which reads results written by version 0.1.x or "
               "earlier"),
+    # before 1.0 a newer minor version may change what a result holds (semantic versioning 2.0.0, item 4)
+    ("0.2.0", "written by cfa-tool 0.2.0, and this is cfa-tool 0.1.0, which reads results written by version 0.1.x or "
+              "earlier"),
+    ("0", "the result names no version it can read ('0'); this is cfa-tool 0.1.0"),
     (None, "the result names no version of cfa-tool; this is cfa-tool 0.1.0"),
 ])
 def test_a_saved_fit_of_a_newer_major_version_or_of_none_is_refused(tmp_path, saved, capsys, version, words):
     """Hostile tester s11 case 18: report and scores --from-fit read a result whose version was 9.0.0, or absent,
-    without a word.  An older file of this major version is read (0.0.1 below)."""
+    without a word; a result of 0.2.0 was read by 0.1.0 (only major versions were compared).  An older file of this
+    series is read (0.0.1 and 0.1.7 below)."""
     assert __version__ == "0.1.0"  # the words above name it
     model = tmp_path / "hs.cfa"
     model.write_text(THREE_FACTORS)
@@ -319,6 +324,8 @@ def test_a_saved_fit_of_a_newer_major_version_or_of_none_is_refused(tmp_path, sa
         code, _, err = _run(argv, capsys)
         assert code == 2 and len(err.strip().splitlines()) == 1 and words in err, (argv[0], err)
     assert not out.exists() and not (tmp_path / "r.html").exists()
-    path.write_text(json.dumps(saved | {"version": "0.0.1"}))
-    code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", path, "--output", out], capsys)
-    assert code == 0 and out.exists(), err
+    for older in ("0.0.1", "0.1.7"):
+        out.unlink(missing_ok=True)
+        path.write_text(json.dumps(saved | {"version": older}))
+        code, _, err = _run(["scores", model, "--data", HS_FILE, "--from-fit", path, "--output", out], capsys)
+        assert code == 0 and out.exists(), (older, err)
