@@ -163,11 +163,14 @@ def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: 
                   names_option: Option = Option.NAMES_ROW) -> LoadedData:
     """The data read for the model ``spec``, as every command reads them: a missing-value code on a declared scale
     refused, no-answer words and labels read as missing in ``items`` only (None: the model's items), and the words
-    its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next."""
+    its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next.  A
+    correlation or covariance matrix given as the data is refused (data.summary_stats.pasted_matrix)."""
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
     listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
-    return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed,
-                     filters, names_row, names_option)
+    loaded = load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items,
+                       listed, filters, names_row, names_option)
+    pasted_matrix(loaded.frame, loaded.row_names, spec.observed_names, loaded.source)  # a matrix is no rows of answers
+    return loaded
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
@@ -180,7 +183,6 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     filters = [parse_filter(k) for k in keep]
     loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row)
     frame = loaded.frame
-    pasted_matrix(frame, loaded.row_names, spec.observed_names, loaded.source)
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
     columns = [c if type(c) is str else str(c) for c in labels]
     if len(set(columns)) != len(columns):
