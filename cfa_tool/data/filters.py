@@ -41,6 +41,13 @@ class RowFilter:
     #: rows the filter left out because their cell in the column was empty (set by apply_filters): an empty cell
     #: meets no comparison, 'mode != bus' included, and a methods section must say so
     empty: int = 0
+    #: rows with a value in the column that the filter left out (set by apply_filters): a filter on a model item
+    #: that leaves out some of its answers restricts that item's range (pipeline.inputs.row_filter_problems)
+    dropped: int = 0
+    #: the codes (as text) that carry the label a text value was compared with, each with its rows before the
+    #: filter, when several codes present carry it (1 and 3 both 'north'; set by apply_filters): the filter treats
+    #: them as one, which a caution says
+    shared: tuple[tuple[str, int], ...] = ()
 
     def __str__(self) -> str:
         return self.text
@@ -160,7 +167,9 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         column = frame[f.column]
         labels = (value_labels or {}).get(f.column)
         by_label = ""
+        shared: tuple[tuple[str, int], ...] = ()
         if labels and not isinstance(f.value, float) and f.operator in ("=", "!="):
+            shared = _codes_of_label(column, labels, f.value)
             column = column.map(lambda v: labels.get(v, v) if pd.notna(v) else v)  # codes -> their labels
             by_label = f" (compared with the value labels of '{printable(f.column)}')"
         dates = None if column.dtype.kind in "iufb" else _as_dates(column)
@@ -196,7 +205,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
             absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "
                       f"{_present(values, target)})" + _case_hint(values, target))
         before = len(frame)
-        f = replace(f, empty=int(column.isna().sum()))
+        f = replace(f, empty=int(column.isna().sum()), dropped=int((~keep & column.notna()).sum()), shared=shared)
         counted.append(f)
         frame = frame.loc[keep.to_numpy()]
         emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
@@ -209,6 +218,18 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         frame.attrs[KEPT_BY] = tuple(f.text for f in filters)  # follows the frame through selections and groups
     return frame, notes, tuple(counted)
 
+
+
+def _codes_of_label(column: pd.Series, labels: dict, value) -> tuple[tuple[str, int], ...]:
+    """The codes of ``column`` (as text) that carry the value label ``value`` (read as data.labels.label_text reads
+    labels), each with its rows, when at least two codes present carry it; () otherwise."""
+    target = label_text(value)
+    codes = [code for code, label in labels.items() if label_text(label) == target]
+    if len(codes) < 2:
+        return ()
+    counted = [(label_text(code), int((column == code).sum())) for code in codes]
+    present = tuple((code, n) for code, n in counted if n)
+    return present if len(present) > 1 else ()
 
 
 def _present(values: pd.Series, target, shown: int = 8) -> str:

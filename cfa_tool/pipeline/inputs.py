@@ -554,7 +554,8 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
                   design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
                   coverage: dict | None = None, n_obs: int | None = None) -> tuple:
     """The cautions on the data that come first in every view, composed here once for every command (fit, check,
-    compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: rows that are copies of
+    compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: what the row filters did to
+    the sample (pipeline.row_filter_cautions: a selection on a model item, a label several codes carry); rows that are copies of
     earlier rows (:func:`copied_row_problems`); a 'reversed' statement's
     declared scale that no answer reaches (:func:`scale_ends_problems`) and rows with one answer throughout
     (:func:`same_answer_problems`, ``ids``: data-row number -> id), both with a ``spec`` that declares reversed
@@ -562,8 +563,10 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     (:func:`odd_value_problems`); items answered by few rows (``coverage``: item -> share of the ``n_obs`` rows
     analysed answering it) and nearly constant items (:func:`few_answers_problems`) among ``names`` (the model's
     items by default).  The data are not refused: the user may know better."""
+    from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
+
     names = names if names is not None else (spec.observed_names if spec is not None else ())
-    found: tuple = copied_row_problems(loaded, group, design, names, ids or {})
+    found: tuple = row_filter_problems(loaded, spec) + copied_row_problems(loaded, group, design, names, ids or {})
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
