@@ -26,7 +26,7 @@ each factor points the way of the items not declared reversed.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import cached_property
 from typing import Callable
 
@@ -411,7 +411,9 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
 
     def no_effect(ref: ParameterRef, word: str) -> ModelError:
         factor = ref.names[0]
-        how = (f"free it ('free {ref}'; the next indicator then sets the scale) or scale '{factor}' another way"
+        freed = (f"in group {written_name(ref.group)}: free {replace(ref, group=None)}" if ref.group is not None
+                 else f"free {ref}")  # a statement as the model language writes it
+        how = (f"free it ('{freed}'; the next indicator then sets the scale) or scale '{factor}' another way"
                if ref.kind == "loading" else f"scale '{factor}' by a marker instead ('scale {written_name(factor)} by marker')")
         return _fail(spec, f"{ref} is fixed to set the scale of '{factor}', so {word} on it has no effect; {how}", ref)
 
