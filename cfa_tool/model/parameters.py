@@ -596,11 +596,15 @@ def group_statement(spec: Spec) -> str | None:
 
 def one_group_only(spec: Spec, what: str) -> None:
     """A model with statements that need groups cannot be used where there are none (simulation, power, the
-    resampling commands): an error that says so without advice about options these commands do not have."""
+    resampling commands): an error at the statement (file, line and column) that says so without advice about
+    options these commands do not have."""
     statement = group_statement(spec)
     if statement is not None:
-        raise OptionError(f"{what}, and the model has {statement}, which needs groups: remove it for this command "
-                          f"(fit, invariance and align take a group column)")
+        refs = [r for r in all_refs(spec) if r.group is not None]  # where the statement is, as fit shows it
+        where = (refs[0].location if refs else spec.noninvariant[0].location if spec.noninvariant
+                 else spec.equalities_location)
+        raise _fail(spec, f"{what}, and the model has {statement}, which needs groups: remove it for this command "
+                          f"(fit, invariance and align take a group column)", where)
 
 
 def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, means: bool) -> None:

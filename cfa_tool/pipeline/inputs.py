@@ -127,6 +127,11 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         if names_row is not None:
             raise OptionError(f"a row of column names ({names_option}) is read from a file, and the "
                               f"data are a data frame, whose columns have their names; leave it out")
+        if isinstance(data.columns, pd.MultiIndex):  # the model names one column by one name
+            raise DataError(f"the data frame's columns have {data.columns.nlevels} levels of names (such as "
+                            f"{printable(repr(data.columns[0]))}), and a model names each column by one name: "
+                            f"flatten them first, e.g. frame.columns = ['_'.join(map(str, c)) for c in frame.columns], "
+                            f"or drop a level with frame.droplevel(0, axis=1)")
         frame = named_by_index_label(blank_text_as_missing(data))  # '' and '  ' are no answer, as an empty cell is
         frame, blank = drop_blank_rows(frame, "<data frame>")  # as the readers leave them out
         frame, notes = apply_missing_codes(frame, missing_codes, "<data frame>", items, filters)  # in the items only
