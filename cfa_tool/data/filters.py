@@ -16,7 +16,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.kept_rows import KEPT_BY, row_naming
+from cfa_tool.data.kept_rows import KEPT_BY, cell_words, row_naming
 from cfa_tool.data.labels import label_text
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
@@ -193,6 +193,15 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
                                       f"in another form than YYYY-MM-DD (such as '{printable(written)}'), whose order "
                                       f"of day and month the file does not say, so they cannot be compared by order; "
                                       f"in a copy of the file write them as YYYY-MM-DD, which filters compare as dates")
+                odd = _not_dates(column)
+                if odd is not None:  # a column of dates but for a few cells: those cells, not the column, are wrong
+                    position, value = odd[0]
+                    more = f" (and {len(odd) - 1} more such cell{'s' if len(odd) > 2 else ''})" if len(odd) > 1 else ""
+                    where = cell_words(frame, f.column, int(row_numbers(frame)[position]))
+                    raise DataError(f"{source}, {where}: '{printable(str(value))}' in '{printable(f.column)}' is not "
+                                    f"a date (a day that exists, written YYYY-MM-DD), and its other cells are "
+                                    f"dates{more}, so row filter '{printable(f)}' cannot compare them by order; "
+                                    f"correct the cell, or leave it empty in a copy of the file")
                 raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds text"
                                   f"{_first_text(column, numeric)}, which can only be compared with = or !=")
             values = column.map(lambda v: None if pd.isna(v) else _cell_label(v))
@@ -290,6 +299,27 @@ def _as_dates(column: pd.Series) -> pd.Series | None:
                                 format="ISO8601")
         return parsed if parsed.notna().sum() == len(present) else None
     return None
+
+
+def _not_dates(column: pd.Series) -> list[tuple[int, object]] | None:
+    """The cells (position, value) of a column that are not dates (nor text written YYYY-MM-DD that is a real day)
+    when at least nine in ten of its present cells are: a column of dates with a few wrong cells ('unknown',
+    '2024-02-30'); None otherwise."""
+    present = column.notna().to_numpy()
+    if not present.any():
+        return None
+
+    def is_date(value) -> bool:
+        if isinstance(value, (datetime.date, pd.Timestamp, np.datetime64)):
+            return True
+        if isinstance(value, str) and _ISO_DATE.fullmatch(value.strip()):
+            return not pd.isna(pd.to_datetime(value.strip(), errors="coerce", format="ISO8601"))
+        return False
+
+    good = np.array([is_date(v) if p else True for v, p in zip(column.tolist(), present)])
+    if good.all() or (~good).sum() > 0.1 * present.sum():
+        return None
+    return [(int(i), column.iloc[i]) for i in np.flatnonzero(~good)]
 
 
 def _date_target(f: RowFilter) -> pd.Timestamp:
