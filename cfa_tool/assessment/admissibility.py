@@ -101,6 +101,11 @@ class ProblemKind(enum.Enum):
     # not an impossible solution but a model these data do not support: CFI or RMSEA beyond the bounds of poor fit
     # (assessment.fit_indices.POOR_FIT_BOUNDS, read from the figures the report says to read)
     POOR_FIT = ("poor fit", "poor fit", False)
+    # not of the solution but of the sample: a row filter that selects rows by their answers to a model item
+    # (pipeline.row_filter_cautions): the item's range is restricted, its correlations changed
+    SELECTED_ON_ITEM = ("rows selected on a model item", "selected on an item", False)
+    # a row filter comparing a label that several codes of a coded column carry: it keeps the rows of them all
+    FILTER_LABEL_OF_SEVERAL_CODES = ("row filter label of several codes", "label of several codes", False)
     UNKNOWN_GROUPS_SCORED = ("rows in groups the fit does not have", "groups the fit lacks", False)
     # not of the solution but of the rows scored: ids that name several rows, in a file meant to be merged by id
     REPEATED_IDS_SCORED = ("ids that name several rows", "repeated ids", False)
@@ -271,6 +276,9 @@ class Problem:
             K.ROWS_LEFT_OUT: f"{v.split('.')[0]} rows left out listwise for a missing answer",
             K.SCALE_ENDS_UNREACHED: "a scale declared for reverse-keyed items whose ends no answer reaches",
             K.NEARLY_CONSTANT: "items answered alike by all rows but a few",
+            K.SELECTED_ON_ITEM: "a row filter selecting rows by their answers to a model item (range restriction)",
+            K.FILTER_LABEL_OF_SEVERAL_CODES: "a row filter on a value label that several codes carry, whose rows it "
+                                             "took together",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
             K.SMALL_GROUP: f"fewer rows ({v.split('.')[0]}) than free parameters of the group's model",

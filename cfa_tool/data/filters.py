@@ -16,7 +16,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from cfa_tool.data.kept_rows import KEPT_BY, row_naming
+from cfa_tool.data.kept_rows import KEPT_BY, cell_words, row_naming
 from cfa_tool.data.labels import label_text
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
@@ -41,6 +41,13 @@ class RowFilter:
     #: rows the filter left out because their cell in the column was empty (set by apply_filters): an empty cell
     #: meets no comparison, 'mode != bus' included, and a methods section must say so
     empty: int = 0
+    #: rows with a value in the column that the filter left out (set by apply_filters): a filter on a model item
+    #: that leaves out some of its answers restricts that item's range (pipeline.inputs.row_filter_problems)
+    dropped: int = 0
+    #: the codes (as text) that carry the label a text value was compared with, each with its rows before the
+    #: filter, when several codes present carry it (1 and 3 both 'north'; set by apply_filters): the filter treats
+    #: them as one, which a caution says
+    shared: tuple[tuple[str, int], ...] = ()
 
     def __str__(self) -> str:
         return self.text
@@ -160,7 +167,9 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         column = frame[f.column]
         labels = (value_labels or {}).get(f.column)
         by_label = ""
+        shared: tuple[tuple[str, int], ...] = ()
         if labels and not isinstance(f.value, float) and f.operator in ("=", "!="):
+            shared = _codes_of_label(column, labels, f.value)
             column = column.map(lambda v: labels.get(v, v) if pd.notna(v) else v)  # codes -> their labels
             by_label = f" (compared with the value labels of '{printable(f.column)}')"
         dates = None if column.dtype.kind in "iufb" else _as_dates(column)
@@ -184,6 +193,15 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
                                       f"in another form than YYYY-MM-DD (such as '{printable(written)}'), whose order "
                                       f"of day and month the file does not say, so they cannot be compared by order; "
                                       f"in a copy of the file write them as YYYY-MM-DD, which filters compare as dates")
+                odd = _not_dates(column)
+                if odd is not None:  # a column of dates but for a few cells: those cells, not the column, are wrong
+                    position, value = odd[0]
+                    more = f" (and {len(odd) - 1} more such cell{'s' if len(odd) > 2 else ''})" if len(odd) > 1 else ""
+                    where = cell_words(frame, f.column, int(row_numbers(frame)[position]))
+                    raise DataError(f"{source}, {where}: '{printable(str(value))}' in '{printable(f.column)}' is not "
+                                    f"a date (a day that exists, written YYYY-MM-DD), and its other cells are "
+                                    f"dates{more}, so row filter '{printable(f)}' cannot compare them by order; "
+                                    f"correct the cell, or leave it empty in a copy of the file")
                 raise OptionError(f"row filter '{printable(f)}': '{printable(f.column)}' holds text"
                                   f"{_first_text(column, numeric)}, which can only be compared with = or !=")
             values = column.map(lambda v: None if pd.isna(v) else _cell_label(v))
@@ -196,7 +214,7 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
             absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "
                       f"{_present(values, target)})" + _case_hint(values, target))
         before = len(frame)
-        f = replace(f, empty=int(column.isna().sum()))
+        f = replace(f, empty=int(column.isna().sum()), dropped=int((~keep & column.notna()).sum()), shared=shared)
         counted.append(f)
         frame = frame.loc[keep.to_numpy()]
         emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
@@ -209,6 +227,18 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
         frame.attrs[KEPT_BY] = tuple(f.text for f in filters)  # follows the frame through selections and groups
     return frame, notes, tuple(counted)
 
+
+
+def _codes_of_label(column: pd.Series, labels: dict, value) -> tuple[tuple[str, int], ...]:
+    """The codes of ``column`` (as text) that carry the value label ``value`` (read as data.labels.label_text reads
+    labels), each with its rows, when at least two codes present carry it; () otherwise."""
+    target = label_text(value)
+    codes = [code for code, label in labels.items() if label_text(label) == target]
+    if len(codes) < 2:
+        return ()
+    counted = [(label_text(code), int((column == code).sum())) for code in codes]
+    present = tuple((code, n) for code, n in counted if n)
+    return present if len(present) > 1 else ()
 
 
 def _present(values: pd.Series, target, shown: int = 8) -> str:
@@ -269,6 +299,27 @@ def _as_dates(column: pd.Series) -> pd.Series | None:
                                 format="ISO8601")
         return parsed if parsed.notna().sum() == len(present) else None
     return None
+
+
+def _not_dates(column: pd.Series) -> list[tuple[int, object]] | None:
+    """The cells (position, value) of a column that are not dates (nor text written YYYY-MM-DD that is a real day)
+    when at least nine in ten of its present cells are: a column of dates with a few wrong cells ('unknown',
+    '2024-02-30'); None otherwise."""
+    present = column.notna().to_numpy()
+    if not present.any():
+        return None
+
+    def is_date(value) -> bool:
+        if isinstance(value, (datetime.date, pd.Timestamp, np.datetime64)):
+            return True
+        if isinstance(value, str) and _ISO_DATE.fullmatch(value.strip()):
+            return not pd.isna(pd.to_datetime(value.strip(), errors="coerce", format="ISO8601"))
+        return False
+
+    good = np.array([is_date(v) if p else True for v, p in zip(column.tolist(), present)])
+    if good.all() or (~good).sum() > 0.1 * present.sum():
+        return None
+    return [(int(i), column.iloc[i]) for i in np.flatnonzero(~good)]
 
 
 def _date_target(f: RowFilter) -> pd.Timestamp:

@@ -339,18 +339,23 @@ def summary_moments(names: list[str], matrix: np.ndarray, n_obs: int, kind: str 
 
 
 def pasted_matrix(frame: pd.DataFrame, row_names: pd.Series | None, items, source: str) -> None:
-    """Raw data that are a correlation matrix pasted as printed in a paper (an empty first cell, rows named as the
-    item columns, ones on the diagonal of that square block; rows of means and standard deviations after it): an
-    error saying how to write it as summary statistics, rather than a fit of its rows as answers.  ``row_names``:
-    the file's row-name column (readers.LoadedData.row_names) or None, when the first column of ``frame`` that is
-    not an item names the rows."""
+    """Raw data that are a correlation or covariance matrix pasted as printed in a paper or saved by a program (an
+    empty first cell, rows named as the item columns; in that square block ones on the diagonal, or a symmetric block
+    with positive variances on its diagonal, each covariance within the bound the two variances set; rows of means
+    and standard deviations may follow): an error saying how to give it as summary statistics, rather than a fit of
+    its rows as answers.  ``row_names``: the file's row-name column (readers.LoadedData.row_names) or None, when the
+    first column of ``frame`` that is not an item names the rows, or, for a data frame given from Python, its index
+    when that holds names rather than whole numbers (DataFrame.cov() and .corr() name their rows so)."""
     if len(frame) > len(items) + 10:  # more rows than a matrix and its few rows after it: rows of answers (every fit
         return  # reads its data through here: this keeps the check off the default call's time, issue 20)
     items = [str(x) for x in items]
     if len(items) < 2 or any(x not in frame.columns for x in items):
         return
     corner = "empty"
-    if row_names is None:
+    from_python = row_names is None and len(frame) and not pd.api.types.is_integer_dtype(frame.index)
+    if from_python:
+        row_names = pd.Series([str(x) for x in frame.index])
+    elif row_names is None:
         others = [c for c in frame.columns if str(c) not in items]
         if not others:
             return
@@ -362,13 +367,43 @@ def pasted_matrix(frame: pd.DataFrame, row_names: pd.Series | None, items, sourc
     if any(x not in where for x in items):
         return
     block = frame[items].iloc[[where[x] for x in items]].apply(pd.to_numeric, errors="coerce").to_numpy(dtype=float)
-    if not np.allclose(np.diag(block), 1.0, atol=1e-9, rtol=0.0):
+    kind = _matrix_kind(block)
+    if kind is None:
         return
-    others = [n for n in names if n not in items and n]
+    span = f"('{printable(items[0])}' to '{printable(items[-1])}')"
+    shown = ("with 1 on the diagonal" if kind == "correlation" else
+             "symmetric, with positive variances on the diagonal")
+    if from_python:
+        how = ("covariance=<the matrix>, n_obs=<the number of observations>" if kind == "covariance" else
+               "covariance=<the matrix>, matrix='correlation', n_obs=<the number of observations> and, if you have "
+               "them, sds=<the standard deviations>")
+        raise DataError(f"the data frame looks like a {kind} matrix, not rows of answers: its rows are named as its "
+                        f"columns {span}, {shown}; to fit it as summary statistics give it as {how}, not as the data "
+                        f"(or pass the rows of answers themselves as the data)")
+    columns = {str(c) for c in frame.columns}
+    others = [n for n in names if n not in columns and n]  # rows after the matrix (a variable's row is no such row)
     rename = (f"; after the matrix come only rows named {', '.join(EXTRA_ROWS)} (here "
               f"{', '.join(repr(printable(n)) for n in others[:4])})" if others else "")
-    raise DataError(f"{source} looks like a correlation matrix, not rows of answers: its rows are named as its columns "
-                    f"('{printable(items[0])}' to '{printable(items[-1])}') with 1 on the diagonal; to fit it as "
-                    f"summary statistics write 'correlation' in its first cell (now {corner}) and add a row 'n' with "
+    raise DataError(f"{source} looks like a {kind} matrix, not rows of answers: its rows are named as its columns "
+                    f"{span}, {shown}; to fit it as "
+                    f"summary statistics write '{kind}' in its first cell (now {corner}) and add a row 'n' with "
                     f"the number of observations after the matrix{rename} (the README's section on summary "
                     f"statistics shows the layout)")
+
+
+def _matrix_kind(block: np.ndarray) -> str | None:
+    """'correlation' for a square block with ones on its diagonal, 'covariance' for one whose lower triangle is filled
+    with positive variances on its diagonal, its upper triangle empty or the mirror of the lower one, and each
+    covariance no larger than the product of the two standard deviations (Cauchy-Schwarz); None otherwise."""
+    diagonal = np.diag(block)
+    if np.allclose(diagonal, 1.0, atol=1e-9, rtol=0.0):
+        return "correlation"
+    lower = block[np.tril_indices_from(block)]
+    if not np.isfinite(lower).all() or not (diagonal > 0).all():
+        return None
+    upper = block.T[np.tril_indices_from(block, -1)]  # the mirror cells of the lower triangle
+    mirrored = block[np.tril_indices_from(block, -1)]
+    if not (np.isnan(upper).all() or np.allclose(upper, mirrored, rtol=1e-6, atol=1e-12)):
+        return None
+    bound = np.sqrt(np.outer(diagonal, diagonal))
+    return "covariance" if (np.abs(np.tril(block, -1)) <= bound * (1 + 1e-9)).all() else None

@@ -192,6 +192,21 @@ def _counted_part(first: str, last: str, fail: Callable[[str], Exception]) -> tu
     return "".join(parts1[:k]), parts1[k], parts2[k], "".join(parts1[k + 1:])
 
 
+def _numbered_end(end: str, items: Sequence[str], place: str) -> list[str]:
+    """For a range's ``place`` ('start' or 'end') written as a stem and a number ('q01', 'q12') that is no item: the
+    item of that stem with the lowest number (a start) or the highest (an end), as a suggestion; [] without one."""
+    import re
+
+    found = re.fullmatch(r"(.*?)(\d+)", end)
+    if found is None:
+        return []
+    numbered = [(int(m.group(2)), x) for x in items
+                if (m := re.fullmatch(r"(.*?)(\d+)", x)) and m.group(1) == found.group(1)]
+    if not numbered:
+        return []
+    return [(min if place == "start" else max)(numbered)[1]]
+
+
 def ordinal_names(given: str | Sequence[str], items: Sequence[str], among: str) -> list[str]:
     """The items that ``--ordinal`` / ``ordinal=`` names (one name or a list, 'all' handled before), each one of
     ``items`` (``among`` says what they are in an error: 'an indicator in the model').  A range such as
@@ -217,10 +232,10 @@ def ordinal_names(given: str | Sequence[str], items: Sequence[str], among: str) 
             names.append(name)
             continue
         option = Option.ORDINAL.given(name)
-        for end in ends:
+        for place, end in zip(("start", "end"), ends):
             if end not in items:
-                guess = close_names(end, items)
-                raise OptionError(f"{option}: the range's end '{printable(end)}' is not {among}"
+                guess = _numbered_end(end, items, place) or close_names(end, items)
+                raise OptionError(f"{option}: the range's {place} '{printable(end)}' is not {among}"
                                   + (f"; did you mean '{printable(guess[0])}'?" if guess else ""))
         counted = range_names(ends[0], ends[1], lambda message: OptionError(f"{option}: {message}"))
         missing = [x for x in counted if x not in items]

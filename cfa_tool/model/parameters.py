@@ -26,7 +26,7 @@ each factor points the way of the items not declared reversed.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import cached_property
 from typing import Callable
 
@@ -416,7 +416,9 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
 
     def no_effect(ref: ParameterRef, word: str) -> ModelError:
         factor = ref.names[0]
-        how = (f"free it ('free {ref}'; the next indicator then sets the scale) or scale '{factor}' another way"
+        freed = (f"in group {written_name(ref.group)}: free {replace(ref, group=None)}" if ref.group is not None
+                 else f"free {ref}")  # a statement as the model language writes it
+        how = (f"free it ('{freed}'; the next indicator then sets the scale) or scale '{factor}' another way"
                if ref.kind == "loading" else f"scale '{factor}' by a marker instead ('scale {written_name(factor)} by marker')")
         return _fail(spec, f"{ref} is fixed to set the scale of '{factor}', so {word} on it has no effect; {how}", ref)
 
@@ -663,11 +665,15 @@ def group_statement(spec: Spec) -> str | None:
 
 def one_group_only(spec: Spec, what: str) -> None:
     """A model with statements that need groups cannot be used where there are none (simulation, power, the
-    resampling commands): an error that says so without advice about options these commands do not have."""
+    resampling commands): an error at the statement (file, line and column) that says so without advice about
+    options these commands do not have."""
     statement = group_statement(spec)
     if statement is not None:
-        raise OptionError(f"{what}, and the model has {statement}, which needs groups: remove it for this command "
-                          f"(fit, invariance and align take a group column)")
+        refs = [r for r in all_refs(spec) if r.group is not None]  # where the statement is, as fit shows it
+        where = (refs[0].location if refs else spec.noninvariant[0].location if spec.noninvariant
+                 else spec.equalities_location)
+        raise _fail(spec, f"{what}, and the model has {statement}, which needs groups: remove it for this command "
+                          f"(fit, invariance and align take a group column)", where)
 
 
 def _check_group_use(spec: Spec, group_labels: tuple[str, ...], multi: bool, means: bool) -> None:

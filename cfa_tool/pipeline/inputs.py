@@ -135,6 +135,11 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         if names_row is not None:
             raise OptionError(f"a row of column names ({names_option}) is read from a file, and the "
                               f"data are a data frame, whose columns have their names; leave it out")
+        if isinstance(data.columns, pd.MultiIndex):  # the model names one column by one name
+            raise DataError(f"the data frame's columns have {data.columns.nlevels} levels of names (such as "
+                            f"{printable(repr(data.columns[0]))}), and a model names each column by one name: "
+                            f"flatten them first, e.g. frame.columns = ['_'.join(map(str, c)) for c in frame.columns], "
+                            f"or drop a level with frame.droplevel(0, axis=1)")
         if first_data_row is not None:
             raise OptionError(f"a first row of data ({first_data_option(names_option)}) is read from a file, and the "
                               f"data are a data frame, whose rows are all data; leave it out")
@@ -180,11 +185,14 @@ def load_data_for(spec: Spec, data, sheet=None, missing_codes=(), text_columns: 
     """The data read for the model ``spec``, as every command reads them: a missing-value code on a declared scale
     refused, no-answer words and labels read as missing in ``items`` only (None: the model's items), and the words
     its 'answers' statements code kept as answers whatever they say; ``filters``: the row filters applied next;
-    ``rename``: columns read under new names (:func:`load_data`)."""
+    ``rename``: columns read under new names (:func:`load_data`).  A correlation or covariance matrix given as the
+    data is refused (data.summary_stats.pasted_matrix)."""
     check_codes_off_scales(spec, missing_codes_option(missing_codes))
     listed = {x: frozenset(c.codes_by_word()) for x, c in spec.answer_codings().items()}  # answers, whatever they say
-    return load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items, listed,
-                     filters, names_row, names_option, first_data_row, rename, rename_option)
+    loaded = load_data(data, sheet, missing_codes, text_columns, spec.observed_names if items is None else items,
+                       listed, filters, names_row, names_option, first_data_row, rename, rename_option)
+    pasted_matrix(loaded.frame, loaded.row_names, spec.observed_names, loaded.source)  # a matrix is no rows of answers
+    return loaded
 
 
 def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
@@ -204,7 +212,6 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row, names_option,
                            first_data_row, rename, rename_option)
     frame = loaded.frame
-    pasted_matrix(frame, loaded.row_names, spec.observed_names, loaded.source)
     labels = frame.columns.tolist()  # as Python objects at once (iterating an Index boxes each label)
     columns = [c if type(c) is str else str(c) for c in labels]
     if len(set(columns)) != len(columns):
@@ -609,7 +616,8 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
                   design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
                   coverage: dict | None = None, n_obs: int | None = None) -> tuple:
     """The cautions on the data that come first in every view, composed here once for every command (fit, check,
-    compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: rows that are copies of
+    compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: what the row filters did to
+    the sample (pipeline.row_filter_cautions: a selection on a model item, a label several codes carry); rows that are copies of
     earlier rows (:func:`copied_row_problems`); a 'reversed' statement's
     declared scale that no answer reaches (:func:`scale_ends_problems`) and rows with one answer throughout
     (:func:`same_answer_problems`, ``ids``: data-row number -> id), both with a ``spec`` that declares reversed
@@ -617,8 +625,10 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     (:func:`odd_value_problems`); items answered by few rows (``coverage``: item -> share of the ``n_obs`` rows
     analysed answering it) and nearly constant items (:func:`few_answers_problems`) among ``names`` (the model's
     items by default).  The data are not refused: the user may know better."""
+    from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
+
     names = names if names is not None else (spec.observed_names if spec is not None else ())
-    found: tuple = copied_row_problems(loaded, group, design, names, ids or {})
+    found: tuple = row_filter_problems(loaded, spec) + copied_row_problems(loaded, group, design, names, ids or {})
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})

@@ -16,6 +16,7 @@ import numpy as np
 import pandas as pd
 
 from cfa_tool.assessment.admissibility import sample_size_problems
+from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 from cfa_tool.errors import DataError, OptionError, printable
 from cfa_tool.options import Interface, Option, interface
 from cfa_tool.exploration import (CountNote, CountRule, Exploration, ExploreSettings, ExtractionMethod, RotationMethod,
@@ -664,7 +665,8 @@ def explore(data, *, items=None, factors=None, rotation: str | RotationMethod = 
     # values that look like no answers among the rows read (both halves of a split): first in every view
     # and items answered alike by all rows but a few, as fit names them (pipeline.inputs.few_answers_problems)
     screened = api.screened(frame, tuple(chosen), source, loaded.non_answers, loaded.cautions)
-    data_problems = (api.copied_row_problems(screened, None, None, tuple(chosen), {})  # rows pasted twice, as fit
+    data_problems = (row_filter_problems(loaded, None, tuple(chosen))  # a selection on an item, as fit names it
+                     + api.copied_row_problems(screened, None, None, tuple(chosen), {})  # rows pasted twice, as fit
                      + api.odd_value_problems(screened) + api.few_answers_problems(tuple(chosen), {}, None, screened))
     halves = None
     if split is not None:

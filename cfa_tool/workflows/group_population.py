@@ -18,13 +18,13 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from cfa_tool import options as check
-from cfa_tool.errors import OptionError
+from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.language.checks import all_refs
 from cfa_tool.language.spec import ParameterRef, Spec
 from cfa_tool.model.implied import ModelMatrices, StructuredModel
 from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.numerics.linalg import log_det_pd
-from cfa_tool.workflows.simulation import Population, population_from_spec
+from cfa_tool.workflows.simulation import Population, given_values_possible, population_from_spec
 
 #: parameters the one-group population cannot hold (it has no mean structure): given per group here
 MEAN_KINDS = ("intercept", "mean")
@@ -158,6 +158,9 @@ def group_population(spec: Spec, labels: tuple[str, ...], configural: Spec) -> G
                 theta[k] = given if np.isfinite(given) else value_of.get((par.kind, par.variables), 0.0)
     if np.isnan(theta).any():  # pragma: no cover - every free parameter of a model with groups is one entry somewhere
         raise OptionError("a population value could not be laid out for every group")
+    values = model.entry_values(theta)
+    for g, label in enumerate(labels):  # a group's values checked as the shared ones are, at their statements
+        given_values_possible(spec, table, values, g, label)
     factor_means = _factor_means(spec, table)
     mats = []
     for g, label in enumerate(labels):
@@ -167,8 +170,15 @@ def group_population(spec: Spec, labels: tuple[str, ...], configural: Spec) -> G
     means = tuple(np.array(m.implied_mean()) for m in mats)
     for label, sigma in zip(labels, sigmas):
         if log_det_pd(sigma) is None:
-            raise OptionError(f"the population values of group '{label}' imply a covariance matrix that is not "
-                              f"positive definite or not finite (check its 'in group {label}:' values)")
+            own = [(ref, s.value, how) for how, settings in (("start", spec.starts), ("fix", spec.fixed))
+                   for s in settings for ref in s.refs if ref.group == label]
+            listed = "; ".join(f"line {ref.location.line}: {how} {ref} = {value:g}" for ref, value, how in own)
+            message = (f"the population values of group '{label}' imply a covariance matrix that is not positive "
+                       f"definite or not finite: check its 'in group {label}:' values"
+                       + (f" ({listed})" if own else ""))
+            if own:
+                raise ModelError(message, own[0][0].location, spec.source_line(own[0][0].location))
+            raise OptionError(message)
     return GroupPopulation(spec, labels, sigmas, means, shared, _differences(table, model.entry_values(theta),
                                                                              factor_means, labels))
 

@@ -151,6 +151,30 @@ def _ladder_of(spec: Spec, highest: str) -> tuple[tuple[str, Spec], ...]:
     return tuple(out)
 
 
+def _differences_tested(spec: Spec, population: GroupPopulation, highest: str) -> None:
+    """An error at the 'in group' statement whose population difference only a step beyond ``highest`` tests (an
+    intercept with the ladder stopping at metric, a residual variance before strict): up to ``highest`` those
+    parameters are free in each group, in every model fitted, so the difference cannot change any step's test; a
+    plan with it would report the steps' rejection shares as if the stated difference had been looked for."""
+    stop = HIGHEST_LEVELS.index(highest) + 1  # index in LEVELS
+    tested_at = {kind: level for level, _, kinds in LEVELS for kind in kinds}
+    for d in population.differences:
+        level = tested_at.get(d.kind)
+        if level is None or [name for name, _, _ in LEVELS].index(level) <= stop:
+            continue
+        word = {"residual_variance": "variance", "residual_covariance": "covariance"}.get(d.kind, d.kind)
+        ref = next((r for s in spec.starts + spec.fixed for r in s.refs if r.group == d.group and r.kind == word
+                    and sorted(r.names) == sorted(d.variables)), None)
+        what = f"{ref}" if ref is not None else f"{word}({', '.join(d.variables)}) in group {d.group}"
+        message = (f"{what} makes group '{d.group}' differ from '{population.labels[0]}' ({d.value:g} against "
+                   f"{d.reference_value:g}), which only the {level} step tests, and {check.Option.HIGHEST_LEVEL} "
+                   f"{highest} stops before it: up to {highest} the parameter is free in each group, so the difference "
+                   f"changes no step's test; give {check.Option.HIGHEST_LEVEL.given(level)} to plan for it, or remove "
+                   f"the statement")
+        location = ref.location if ref is not None else None
+        raise ModelError(message, location, spec.source_line(location))
+
+
 def _fit_ladder(ladder: tuple[tuple[str, Spec], ...], groups: list, alpha: float | None) -> list:
     """Each level's (estimation, result, difference test against the level before or None), fitted and tested
     as the invariance command fits and tests them (:class:`~cfa_tool.workflows.invariance.NormalLadder`); the
@@ -269,6 +293,7 @@ def invariance_power(model, group_sizes, replications: int = 500, seed: int = 1,
                               f"values per simulated data set; plan with smaller groups")
     ladder = _ladder_of(spec, highest_level)
     population = group_population(spec, labels, spec_of_level(spec, LEVELS[0][1], spec.noninvariant))
+    _differences_tested(spec, population, highest_level)
     truth = [_population_steps(population, ladder, design) for design in designs]
     # one design keeps the seeds one sample size has; several take one stream per design from the same seed
     streams = ([np.random.SeedSequence(seed)] if len(designs) == 1

@@ -318,6 +318,70 @@ def _values(how: str) -> str:
     return "fixed values" if how == "fixed at" else "start values"
 
 
+def _settings_for(spec: Spec, label: str | None) -> dict[tuple, tuple]:
+    """The 'start' and 'fix' statements that set a variance or covariance of group ``label`` (None: a model of one
+    group): (kind, variables) as the parameter table keys them -> (reference, value, how it was given); a statement
+    for the group overrides one for every group (and a 'fix' a 'start', as the parameter table takes them)."""
+    latent = set(spec.factor_names)
+    found: dict[tuple, tuple] = {}
+    for how, settings in (("given the start value", spec.starts), ("fixed at", spec.fixed)):
+        for ref in sorted((r for s in settings for r in s.refs if r.kind in ("variance", "covariance")
+                           and r.group in (None, label)), key=lambda r: r.group is not None):
+            value = next(s.value for s in settings if ref in s.refs)
+            level = "factor" if ref.names[0] in latent else "residual"
+            names = ref.names if ref.kind == "covariance" else ref.names[:1]
+            found[(f"{level}_{ref.kind}", tuple(names))] = (ref, value, how)
+    return found
+
+
+def given_values_possible(spec: Spec, table: ParameterTable, values: np.ndarray, group: int = 0,
+                          label: str | None = None) -> None:
+    """An error at the 'start' or 'fix' statement (file, line and column, as a model error shows them) whose value
+    makes the population of group ``label`` (None: of a model of one group) impossible, with the parameter and the
+    value: a variance below zero, or a covariance larger than the product of the two standard deviations that
+    population has (a correlation beyond +/-1; Horn & Johnson 2013, Observation 7.1.2).  ``values``: every table
+    entry's value (StructuredModel.entry_values), of which group ``group``'s are read."""
+    entry = {(par.kind, par.variables): float(v) for par, v in zip(table.parameters, values) if par.group == group}
+    settings = _settings_for(spec, label)
+    whose = "" if label is None else f" of group '{printable(label)}'"
+
+    def fail(ref, how: str, words: str) -> ModelError:
+        where = "" if label is None or ref.group is not None else f" (a value for every group, here group '{label}')"
+        return ModelError(f"the {_values(how)} make the population covariance matrix{whose} impossible: {ref}{where} "
+                          f"is {how} {words}", ref.location, spec.source_line(ref.location))
+
+    for (kind, names), (ref, value, how) in settings.items():
+        if kind.endswith("_variance") and value < 0:
+            raise fail(ref, how, f"{value:g}, and a variance cannot be negative")
+    for (kind, names), (ref, value, how) in settings.items():
+        if not kind.endswith("_covariance"):
+            continue
+        variance = kind.replace("covariance", "variance")
+        a, b = names
+        va, vb = entry.get((variance, (a,))), entry.get((variance, (b,)))
+        covariance = entry.get((kind, (a, b)), entry.get((kind, (b, a))))
+        if va is None or vb is None or covariance is None or not va >= 0 or not vb >= 0 or np.isnan(covariance):
+            continue  # a value not given yet (NaN), or a negative variance said above
+        bound = np.sqrt(va * vb)
+        if abs(covariance) > bound * (1 + 1e-9):
+            correlation = f", a correlation of {covariance / bound:.2f}" if bound > 0 else ""
+            raise fail(ref, how, f"{value:g}, beyond what the variances of {a} ({va:.3g}) and {b} ({vb:.3g}) allow"
+                                 f"{correlation}")
+
+
+def _given_entries(table: ParameterTable) -> np.ndarray:
+    """Each table entry's value as the model file gives it ('fix' and 'start' statements, the values that set the
+    factors' scales), NaN where the file gives none."""
+    values = np.full(len(table.parameters), np.nan)
+    for i, par in enumerate(table.parameters):
+        if not par.free:
+            values[i] = par.offset
+        elif len(par.terms) == 1:
+            index, coefficient = par.terms[0]
+            values[i] = par.offset + coefficient * table.start[index]
+    return values
+
+
 def impossible_fixed_values(table: ParameterTable, source: str) -> None:
     """An error (the model file is the bad input) when the values the model file gives ('fix' and 'start'
     statements, and the values that set each factor's scale) cannot belong to any population: a variance below
@@ -387,8 +451,9 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
         return _population_from_fit(spec, fitted)
     one_group_only(spec, "the simulation draws rows of one group")
     table = build_parameter_table(spec)
-    impossible_fixed_values(table, spec.source)
     model = StructuredModel(table)
+    given_values_possible(spec, table, _given_entries(table))  # at their statements, before any default
+    impossible_fixed_values(table, spec.source)
     given = table.start.copy()
     kind_of: dict[int, str] = {}
     for par in table.parameters:
@@ -414,6 +479,7 @@ def population_from_spec(spec: Spec, fitted=None) -> Population:
         theta = _defaults_beside_given(table, model, theta, np.isnan(given), target,
                                        standardized_entries(table, model, est.theta))
     beyond_bounds(spec, table, theta, given)
+    given_values_possible(spec, table, model.entry_values(theta))  # a covariance beside the variances it met
     sigma = model.implied(theta)
     if log_det_pd(sigma) is None:  # not positive definite, or not finite
         raise OptionError("the population values imply a covariance matrix that is not positive definite or not finite "

@@ -71,7 +71,9 @@ def test_every_command_with_the_option_counts_ranges(command, capsys, tmp_path, 
     monkeypatch.chdir(tmp_path)
     code, err = _run([*command, "--data", DATA, "--ordinal", "q1..q9"], capsys)
     among = "one of the items explored" if command[0] == "explore" else "an indicator in the model"
-    assert code == 2 and err.startswith(f"cfa-tool: --ordinal q1..q9: the range's end 'q9' is not {among}\n"), err
+    # the suggestion is the item of the same stem at that end (the highest numbered: q6)
+    assert code == 2 and err.startswith(f"cfa-tool: --ordinal q1..q9: the range's end 'q9' is not {among}; did you "
+                                        f"mean 'q6'?\n"), err
     assert list(tmp_path.iterdir()) == []
 
 

@@ -1,0 +1,72 @@
+"""Cautions on what the row filters (--keep, keep=...) did to the sample, first in every view of every command that
+takes them (composed with the data's other cautions by pipeline.inputs.data_problems): a filter that selects rows by
+their answers to a model item, and a filter whose value label several codes of the column carry."""
+
+from __future__ import annotations
+
+from cfa_tool.assessment.admissibility import Problem, ProblemKind
+from cfa_tool.data.readers import LoadedData
+from cfa_tool.errors import printable
+from cfa_tool.language.spec import Spec
+from cfa_tool.options import Option
+
+
+def row_filter_problems(loaded: LoadedData, spec: Spec | None = None,
+                        items: tuple[str, ...] | None = None) -> tuple[Problem, ...]:
+    """The cautions on ``loaded``'s row filters (data.filters.RowFilter, as apply_filters counted them), in the
+    filters' order: :func:`selected_on_item` for a filter on an item of ``spec`` (or, without a model, one of the
+    ``items`` explored) that left out some of its answers, :func:`label_of_several_codes` for one whose label several
+    codes carry."""
+    analysed = spec.observed_names if spec is not None else (items or ())
+    found: list[Problem] = []
+    for f in loaded.row_filters:
+        if f.column in analysed and f.dropped:
+            found.append(selected_on_item(f, spec))
+        if f.shared:
+            found.append(label_of_several_codes(f))
+    return tuple(found)
+
+
+def selected_on_item(f, spec: Spec | None) -> Problem:
+    """A row filter that selects rows by their answers to a model item: among the rows kept the item's answers
+    spread differently (a cut at one end narrows them), which changes its correlations with the other items and so
+    its loading, its factor's variance and the factor's reliability: range restriction, a textbook effect (Pearson
+    1903; Thorndike 1949, recalled from memory).  The rows are analysed as kept: the population may be meant so."""
+    item = f.column
+    factors = ([factor.name.text for factor in spec.factors if any(i.text == item for i in factor.indicators)]
+               if spec is not None else [])
+    of = " and ".join(printable(name) for name in factors)
+    what = (f"the loading of '{printable(item)}', the variance of {of} and the reliability (omega) of {of}" if factors
+            else f"the loadings of '{printable(item)}'")
+    return Problem(
+        ProblemKind.SELECTED_ON_ITEM, (), float(f.dropped),
+        f"Row filter '{printable(str(f))}' selects rows by their answers to '{printable(item)}', "
+        f"{f'an item of {of}' if factors else 'one of the items analysed'}: it "
+        f"left out {f.dropped} row{'s' if f.dropped != 1 else ''} with an answer to it. Among the rows kept the "
+        f"item's answers spread differently (a cut at one end narrows them), which changes its correlations with the "
+        f"other items (range restriction, a textbook effect: Pearson 1903, Thorndike 1949; recalled from memory): "
+        f"{what} describe the rows kept, not the sample, and usually come out smaller.",
+        f"select rows by a column that is not {'in the model' if factors else 'among the items'} (a district, a "
+        f"wave, a date); if the population studied is "
+        f"defined by the answers to '{printable(item)}', say in the report that the item's range was restricted by "
+        f"the selection.")
+
+
+def label_of_several_codes(f) -> Problem:
+    """A row filter comparing the value labels of a coded column (SPSS, Stata) with a label that several codes
+    carry (1 and 3 both 'north'): it keeps (or, with '!=', leaves out) the rows of every such code, as the group
+    column reads them as one group (data.labels.label_notes).  A caution, not a refusal: the data file says the codes
+    mean the same, and the researcher can filter by one code (a number compares with the codes) when they do not."""
+    codes = [f"{printable(code)} ({n} row{'s' if n != 1 else ''})" for code, n in f.shared]
+    listed = ", ".join(codes[:-1]) + f" and {codes[-1]}"
+    did = "kept" if f.operator == "=" else "left out"
+    column = printable(f.column)
+    first = f.shared[0][0]
+    both = "both" if len(f.shared) == 2 else "all"
+    return Problem(
+        ProblemKind.FILTER_LABEL_OF_SEVERAL_CODES, (), float(len(f.shared)),
+        f"Row filter '{printable(str(f))}' compares the value labels of '{column}', and codes {listed} {both} carry "
+        f"the label '{printable(str(f.value))}': the filter {did} the rows of every one of them.",
+        f"if the codes are different categories, filter by a code ({Option.KEEP.given(f'{column} {f.operator} {first}')}"
+        f" compares the codes themselves) or give the codes different value labels in the data file; if they are one "
+        f"category, nothing needs changing.")
