@@ -185,20 +185,13 @@ class MissingDataLikelihood:
             mats, A, w, ATA, M, Ad, mean_gradient = state
             if mats.B.any():
                 return None
-            P, p, _ = A.shape
-            d_sigma, d_mu = self._jacobian(theta, g)
-            same = _trace_contract(_trace_weights(A, A, w), d_sigma, d_sigma)  # sum_k w_k tr(A X A Y)
-            mixed = _trace_contract(_trace_weights(A, ATA, w), d_sigma, d_sigma)  # sum_k w_k tr(A X (ATA) Y)
-            t3 = (Ad * w[:, None]).T @ A.reshape(P, p * p)  # [i, (j, l)] = sum_k w_k (A d)_i A_jl
-            cross = d_sigma.reshape(q, p * p) @ t3.reshape(p * p, p) @ d_mu.T  # d'A D_a A dmu_b
-            H = (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T)  # mixed is symmetric: 2 mixed, symmetrised
-                 + 2.0 * d_mu @ np.tensordot(w, A, axes=1) @ d_mu.T)
-            codes, rows, cols = self.model._codes[g], self.model._rows[g], self.model._cols[g]
-            second = second_derivative_contraction(self.model.all_second_orders[g], M, mats.L, mats.P)
-            second += _mean_second_derivatives(codes, rows, cols, mean_gradient)
-            J = self.model._J[g]
-            total += w_group * (H + J.T @ second @ J)
+            H = first_order_hessian(A, w, ATA, Ad, *self._jacobian(theta, g))
+            total += w_group * (H + self._second_order(g, mats, M, mean_gradient))
         return 0.5 * (total + total.T)
+
+    def _second_order(self, g: int, mats, M: np.ndarray, mean_gradient: np.ndarray) -> np.ndarray:
+        """Group g's tr(M D_ab) + m' dmu_ab (:meth:`observed_hessian`): the model's (:func:`model_second_order`)."""
+        return model_second_order(self.model, g, mats, M, mean_gradient)
 
     def gradient(self, theta: np.ndarray) -> np.ndarray:
         """The gradient alone, row by row (no information matrix): what finite-difference
@@ -238,6 +231,48 @@ class MissingDataLikelihood:
             d_sigma, d_mu = self.model.jacobian(theta, g)
             total += w_group * (d_sigma.reshape(q, -1) @ M.ravel() - 2.0 * d_mu @ (wu.sum(axis=0) / n))
         return total
+
+
+def first_order_hessian(A: np.ndarray, w: np.ndarray, ATA: np.ndarray, Ad: np.ndarray, d_sigma: np.ndarray,
+                        d_mu: np.ndarray) -> np.ndarray:
+    """The terms of :meth:`MissingDataLikelihood.observed_hessian` in the first derivatives D_a, dmu_a (``d_sigma``,
+    ``d_mu``) of Sigma and mu, from the patterns' A, weights w, A T A and A d:
+        sum_k w_k [-tr(A D_a A D_b) + 2 tr(A D_a (A T A) D_b) + 2 d'A D_a A dmu_b + 2 d'A D_b A dmu_a
+                   + 2 dmu_a' A dmu_b]."""
+    q = len(d_sigma)
+    P, p, _ = A.shape
+    same = _trace_contract(_trace_weights(A, A, w), d_sigma, d_sigma)  # sum_k w_k tr(A X A Y)
+    mixed = _trace_contract(_trace_weights(A, ATA, w), d_sigma, d_sigma)  # sum_k w_k tr(A X (ATA) Y)
+    t3 = (Ad * w[:, None]).T @ A.reshape(P, p * p)  # [i, (j, l)] = sum_k w_k (A d)_i A_jl
+    cross = d_sigma.reshape(q, p * p) @ t3.reshape(p * p, p) @ d_mu.T  # d'A D_a A dmu_b
+    return (-same + (mixed + mixed.T) + 2.0 * (cross + cross.T)  # mixed is symmetric: 2 mixed, symmetrised
+            + 2.0 * d_mu @ np.tensordot(w, A, axes=1) @ d_mu.T)
+
+
+def moment_hessian(data: PatternData, mu: np.ndarray, sigma: np.ndarray, d_sigma: np.ndarray, d_mu: np.ndarray,
+                   ) -> np.ndarray | None:
+    """The observed information of the saturated (unstructured) model: the second derivatives of f (module
+    docstring) at any (mu, Sigma) along directions (``d_sigma``, ``d_mu``) linear in the moments, so that the
+    terms of :func:`first_order_hessian` are all there is (None if some Sigma_oo is not positive definite)."""
+    inv = embedded_inverse(sigma, data.observed)
+    if inv is None:
+        return None
+    A, _ = inv
+    dev = np.where(data.observed, data.means - mu, 0.0)
+    T = data.scatter + dev[:, :, None] * dev[:, None, :]
+    w = data.counts / data.counts.sum()
+    return first_order_hessian(A, w, A @ T @ A, (A @ dev[:, :, None])[:, :, 0], d_sigma, d_mu)
+
+
+def model_second_order(model: StructuredModel, g: int, mats, M: np.ndarray, mean_gradient: np.ndarray) -> np.ndarray:
+    """tr(M D_ab) + m' dmu_ab in the model's parameters (no higher-order factors): the term of
+    :meth:`MissingDataLikelihood.observed_hessian` in the second derivatives of Sigma and mu (Neudecker & Satorra
+    1991), M and m the gradient's parts in Sigma and mu."""
+    codes, rows, cols = model._codes[g], model._rows[g], model._cols[g]
+    second = second_derivative_contraction(model.all_second_orders[g], M, mats.L, mats.P)
+    second += _mean_second_derivatives(codes, rows, cols, mean_gradient)
+    J = model._J[g]
+    return J.T @ second @ J
 
 
 def pattern_outer(X: np.ndarray, Y: np.ndarray, w: np.ndarray) -> np.ndarray:
