@@ -185,6 +185,22 @@ def test_yuan_bentler_scaling_with_complete_rows_from_the_observed_information(h
     assert sb.robust.scaling_factor == pytest.approx(yb.robust.scaling_factor, rel=0.1)
 
 
+def test_every_view_names_the_information_of_the_robust_standard_errors(hs_data, hs_holes):
+    # the Yuan-Bentler sandwich is built on the observed information, the Satorra-Bentler one on the expected
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    yb = cfa_tool.fit(THREE_FACTORS, hs_holes, test="robust")
+    assert yb.robust.test is FitTest.YUAN_BENTLER
+    assert yb.estimator.endswith("robust (Huber-White) standard errors from the observed information "
+                                 "(full information, incomplete rows included)")
+    assert json.loads(json.dumps(yb.to_dict()))["estimator"] == yb.estimator
+    assert ("full-information maximum likelihood with the Yuan-Bentler scaled test and robust standard errors whose "
+            "sandwich is built on the observed information") in methods_paragraph(yb)
+    sb = cfa_tool.fit(THREE_FACTORS, hs_data, test="robust")
+    assert ("maximum likelihood with the Satorra-Bentler scaled test and robust standard errors whose sandwich is "
+            "built on the expected information") in methods_paragraph(sb)
+
+
 def test_yuan_bentler_scaling_is_near_one_for_normal_data_with_gaps():
     rng = np.random.default_rng(21)
     n = 3000
