@@ -208,6 +208,16 @@ class FitMethod:
     def full_information(self) -> bool:
         return self.missing is MissingData.FULL_INFORMATION
 
+    @property
+    def bread(self) -> Information | None:
+        """The information a maximum-likelihood sandwich takes as its bread: the observed one with the Yuan-Bentler
+        test (full-information ML, valid when answers are missing at random; cfa_tool.inference.robust_missing),
+        the expected one with the Satorra-Bentler test (complete rows; cfa_tool.inference.robust); None without a
+        sandwich or with least squares."""
+        if self.ordinal:
+            return None
+        return {FitTest.YUAN_BENTLER: Information.OBSERVED, FitTest.SATORRA_BENTLER: Information.EXPECTED}.get(self.test)
+
     def sentence(self, groups: int = 1) -> str:
         """The estimation in one line, as the report's status line and the JSON's ``estimator`` give it."""
         if self.ordinal:
@@ -225,7 +235,8 @@ class FitMethod:
                      + ("cluster-robust standard errors" if self.clustered else "robust standard errors"))
         elif self.test is FitTest.YUAN_BENTLER:
             text += (" with Yuan-Bentler scaled test and "
-                     + ("cluster-robust standard errors" if self.clustered else "robust (Huber-White) standard errors"))
+                     + ("cluster-robust standard errors" if self.clustered else "robust (Huber-White) standard errors")
+                     + f" from the {self.bread.label}")
         if self.full_information:
             text += " (full information, incomplete rows included)"
         if self.helpers:

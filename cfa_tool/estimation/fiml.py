@@ -38,6 +38,21 @@ def pattern_objective(data: PatternData, mu: np.ndarray, sigma: np.ndarray) -> f
     return float(w @ (logdet + np.einsum("kij,kji->k", A, T)))
 
 
+def moment_hessian(data: PatternData, mu: np.ndarray, sigma: np.ndarray, d_sigma: np.ndarray, d_mu: np.ndarray,
+                   ) -> np.ndarray | None:
+    """The observed information of the saturated (unstructured) model: the second derivatives of f (module
+    docstring) at any (mu, Sigma) along directions (``d_sigma``, ``d_mu``) linear in the moments, so that the
+    terms of :func:`first_order_hessian` are all there is (None if some Sigma_oo is not positive definite)."""
+    inv = embedded_inverse(sigma, data.observed)
+    if inv is None:
+        return None
+    A, _ = inv
+    dev = np.where(data.observed, data.means - mu, 0.0)
+    T = data.scatter + dev[:, :, None] * dev[:, None, :]
+    w = data.counts / data.counts.sum()
+    return first_order_hessian(A, w, A @ T @ A, (A @ dev[:, :, None])[:, :, 0], d_sigma, d_mu)
+
+
 class MissingParts:
     """One group's pieces of the FIML discrepancy at theta (see the module docstring)."""
 

@@ -111,10 +111,8 @@ class FitOptions:
 
 
 #: why missing-data helpers are not offered with robust standard errors (also sampling weights, clusters, strata)
-HELPERS_NOT_ROBUST = ("the tool's robust sandwich for rows with gaps takes its bread from the expected information with "
-                      "the patterns of gaps held fixed, which is valid when answers are missing completely at random "
-                      "(Kenward & Molenberghs 1998; Savalei 2010), while helpers are given for answers missing at "
-                      "random given them")
+HELPERS_NOT_ROBUST = ("robust standard errors and the scaled test with helpers would need each row's scores in the "
+                      "likelihood of the items and helpers together, which the tool does not compute yet")
 
 
 def helper_names(value) -> tuple[str, ...]:

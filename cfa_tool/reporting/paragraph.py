@@ -106,7 +106,8 @@ def _estimator_phrase(result) -> str:
     base = "full-information maximum likelihood" if method.full_information else "maximum likelihood"
     if result.robust is not None:
         test = "Yuan-Bentler" if method.full_information else "Satorra-Bentler"
-        return f"{base} with the {test} scaled test and robust standard errors"
+        bread = "" if method.bread is None else f" whose sandwich is built on the {method.bread.label}"
+        return f"{base} with the {test} scaled test and robust standard errors{bread}"
     if method.information in (Information.EXPECTED, Information.OBSERVED):  # where the standard errors come from
         return f"{base}, with standard errors from the {method.information.label}"
     return base

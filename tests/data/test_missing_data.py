@@ -152,18 +152,53 @@ def test_satorra_bentler_is_refused_with_fiml(hs_holes):
         cfa_tool.fit(THREE_FACTORS, hs_holes, missing="full-information", test="satorra-bentler")
 
 
-def test_yuan_bentler_with_complete_rows_gives_the_sandwich_standard_errors(hs_data):
-    # With no missing answers the row scores give Browne's (1984) sandwich exactly, so the robust
-    # standard errors equal the Satorra-Bentler ones (which match semopy's; tests/inference/test_robust.py).
-    sb = cfa_tool.fit(THREE_FACTORS, hs_data, test="satorra-bentler")
-    yb = cfa_tool.fit(THREE_FACTORS, hs_data, test="yuan-bentler", missing="full-information")
+def test_yuan_bentler_with_complete_rows_and_a_just_identified_model_gives_the_sandwich_standard_errors(hs_data):
+    # The Yuan-Bentler sandwich's bread is the observed information.  With complete rows and a just-identified
+    # model the estimates reproduce the sample moments (Sigma = S, mu = the means), where the observed and the
+    # expected information are equal, and the row scores give Browne's (1984) sandwich exactly: the robust
+    # standard errors equal the Satorra-Bentler ones (whose bread is the expected information; they match
+    # semopy's, tests/semopy/test_robust_against_semopy.py).  Over-identified models: the observed-information
+    # sandwich is checked against semopy's in tests/semopy/test_robust_against_semopy.py.
+    one = "factor visual: x1, x2, x3\n"
+    sb = cfa_tool.fit(one, hs_data, test="satorra-bentler")
+    yb = cfa_tool.fit(one, hs_data, test="yuan-bentler", missing="full-information")
     se = {(r.kind, r.variables): r.se for r in sb.estimates if r.free}
+    compared = 0
     for r in yb.estimates:
         if (r.kind, r.variables) in se:
             assert r.se == pytest.approx(se[(r.kind, r.variables)], rel=1e-6), r.variables
-    # both scaling factors estimate the same quantity; on these data they differ by about 1%
-    assert yb.robust.scaling_factor == pytest.approx(sb.robust.scaling_factor, rel=0.03)
+            compared += 1
+    assert compared == 6 and yb.fit.df == 0
     assert yb.robust.test is FitTest.YUAN_BENTLER
+
+
+def test_yuan_bentler_scaling_with_complete_rows_from_the_observed_information(hs_data):
+    # Holzinger-Swineford three-factor model, complete rows: lavaan's robust maximum likelihood ("MLR", its
+    # Yuan-Bentler correction with observed information) reports 85.306 scaled to 87.132, a factor of 0.979 (values
+    # recalled from memory, not checked here).  The expected-information (Satorra-Bentler) factor of the same
+    # data is 1.055: the two estimate the same limit, apart here by the model's misfit (chi-square 85 on 24 df).
+    yb = cfa_tool.fit(THREE_FACTORS, hs_data, test="yuan-bentler", missing="full-information")
+    assert yb.fit.chi_square == pytest.approx(85.306, abs=1e-3)
+    assert yb.robust.chi_square_scaled == pytest.approx(87.132, abs=2e-3)
+    assert yb.robust.scaling_factor == pytest.approx(0.979, abs=5e-4)
+    sb = cfa_tool.fit(THREE_FACTORS, hs_data, test="satorra-bentler")
+    assert sb.robust.scaling_factor == pytest.approx(yb.robust.scaling_factor, rel=0.1)
+
+
+def test_every_view_names_the_information_of_the_robust_standard_errors(hs_data, hs_holes):
+    # the Yuan-Bentler sandwich is built on the observed information, the Satorra-Bentler one on the expected
+    from cfa_tool.reporting.paragraph import methods_paragraph
+
+    yb = cfa_tool.fit(THREE_FACTORS, hs_holes, test="robust")
+    assert yb.robust.test is FitTest.YUAN_BENTLER
+    assert yb.estimator.endswith("robust (Huber-White) standard errors from the observed information "
+                                 "(full information, incomplete rows included)")
+    assert json.loads(json.dumps(yb.to_dict()))["estimator"] == yb.estimator
+    assert ("full-information maximum likelihood with the Yuan-Bentler scaled test and robust standard errors whose "
+            "sandwich is built on the observed information") in methods_paragraph(yb)
+    sb = cfa_tool.fit(THREE_FACTORS, hs_data, test="robust")
+    assert ("maximum likelihood with the Satorra-Bentler scaled test and robust standard errors whose sandwich is "
+            "built on the expected information") in methods_paragraph(sb)
 
 
 def test_yuan_bentler_scaling_is_near_one_for_normal_data_with_gaps():

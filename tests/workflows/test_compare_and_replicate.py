@@ -211,27 +211,32 @@ def test_rows_with_gaps_are_kept_by_full_information_as_fit_keeps_them(hs_data):
 def _hand_scaling_at(rows, saturated_mean, saturated_cov, mu, sigma, moments_of, theta, df):
     """The Yuan-Bentler (2000) scaling factor written out row by row, for the check below:
     f_i = log|S_oo| + r_o' S_oo^-1 r_o; scores d f_i / d(mu, vec Sigma) through the duplication matrix;
-    A the mean expected information of the rows (patterns held fixed), B the mean outer product of the
-    scores; c = [tr(A_s^-1 B_s) - tr((D'AD)^-1 D'BD)] / (2 df), D = d(mu, vech Sigma) / d theta by
-    central differences of ``moments_of``."""
+    H the observed information (second derivatives of the mean of f_i: in beta = (mu, vech Sigma) by central
+    differences of the mean score; in theta H_beta chained through D = d beta / d theta plus the mean score times
+    the second differences of beta(theta), exact for the polynomial ``moments_of`` up to rounding), B the mean
+    outer product of the scores; c = [tr(H_s^-1 B_s) - tr(H^-1 D'BD)] / (2 df)."""
     p = rows.shape[1]
     pairs = [(i, j) for j in range(p) for i in range(j, p)]
     dup = np.zeros((p * p, len(pairs)))  # vec(Sigma) = dup @ vech(Sigma)
     for k, (i, j) in enumerate(pairs):
         dup[i * p + j, k] = dup[j * p + i, k] = 1.0
 
-    def pieces(m, S):
-        scores, info = [], np.zeros((p + len(pairs),) * 2)
+    def scores_at(beta):
+        m, S = beta[:p], (dup @ beta[p:]).reshape(p, p)
+        scores = []
         for x in rows:
             o = ~np.isnan(x)
             M = np.zeros((p, p))
             M[np.ix_(o, o)] = np.linalg.inv(S[np.ix_(o, o)])
             u = M @ np.where(o, x - m, 0.0)
             scores.append(np.concatenate([-2.0 * u, dup.T @ (M - np.outer(u, u)).ravel()]))
-            info[:p, :p] += 2.0 * M
-            info[p:, p:] += dup.T @ np.kron(M, M) @ dup
-        S_ = np.array(scores)
-        return info / len(rows), S_.T @ S_ / len(rows), S_
+        return np.array(scores)
+
+    def pieces(beta, h=1e-5):
+        S_ = scores_at(beta)
+        H = np.column_stack([(scores_at(beta + h * e).mean(axis=0) - scores_at(beta - h * e).mean(axis=0)) / (2 * h)
+                             for e in np.eye(len(beta))])
+        return 0.5 * (H + H.T), S_.T @ S_ / len(rows), S_
 
     def vech_moments(t):
         m, S = moments_of(t)
@@ -240,10 +245,20 @@ def _hand_scaling_at(rows, saturated_mean, saturated_cov, mu, sigma, moments_of,
     h = 1e-6
     D = np.column_stack([(vech_moments(theta + h * e) - vech_moments(theta - h * e)) / (2 * h)
                          for e in np.eye(len(theta))])
-    A_s, B_s, s_scores = pieces(saturated_mean, saturated_cov)
-    A, B, _ = pieces(mu, sigma)
-    bread = np.linalg.inv(D.T @ A @ D)
-    return (np.trace(np.linalg.solve(A_s, B_s)) - np.trace(bread @ D.T @ B @ D)) / (2 * df), s_scores
+    H_s, B_s, s_scores = pieces(np.concatenate([saturated_mean, saturated_cov[tuple(np.array(pairs).T)]]))
+    beta = np.concatenate([mu, sigma[tuple(np.array(pairs).T)]])
+    H_beta, B, _ = pieces(beta)
+    mean_score = scores_at(beta).mean(axis=0)
+    q, k = len(theta), 1e-3
+    second = np.zeros((q, q))  # mean score times d2 beta / d theta_a d theta_b (central second differences)
+    for a in range(q):
+        for b in range(q):
+            ea, eb = k * np.eye(q)[a], k * np.eye(q)[b]
+            d2 = (vech_moments(theta + ea + eb) - vech_moments(theta + ea - eb) - vech_moments(theta - ea + eb)
+                  + vech_moments(theta - ea - eb)) / (4 * k * k)
+            second[a, b] = mean_score @ d2
+    bread = np.linalg.inv(D.T @ H_beta @ D + second)
+    return (np.trace(np.linalg.solve(H_s, B_s)) - np.trace(bread @ D.T @ B @ D)) / (2 * df), s_scores
 
 
 def test_robust_comparison_with_gaps_gives_the_strictly_positive_version(hs_data):
