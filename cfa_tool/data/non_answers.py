@@ -273,11 +273,17 @@ def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = (),
     are answers whatever they say ('"Don't know" = 3': the model file decides, not this vocabulary)."""
     found: list[NonAnswer] = []
     out = frame
-    for column in frame.columns:
-        series = frame[column]
-        if column in keep_text or pd.api.types.is_numeric_dtype(series) or not (
-                series.dtype == object or pd.api.types.is_string_dtype(series)):
+    kept = set(keep_text)
+    texts_by_type = {}  # columns of text only, judged by their dtypes once (a default fit reads every frame so)
+    for column, dtype in zip(frame.columns, frame.dtypes):
+        if column in kept:
             continue
+        if dtype not in texts_by_type:
+            texts_by_type[dtype] = not pd.api.types.is_numeric_dtype(dtype) and (
+                dtype == object or pd.api.types.is_string_dtype(dtype))
+        if not texts_by_type[dtype]:
+            continue
+        series = frame[column]
         distinct = [v for v in series.dropna().unique() if isinstance(v, str)]
         coded = (listed or {}).get(column, frozenset())
         said = [v for v in distinct if says_no_answer(v) and answer_key(v) not in coded]  # distinct texts
