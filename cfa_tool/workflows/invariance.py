@@ -840,13 +840,22 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
             delta, V = _group_blocks(model, theta, likelihood, g)
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T]) if likelihood.means else c_sigma[:, I, J].T
         else:  # means, vech: the layout of inference.robust_missing
+            from cfa_tool.data.patterns import embedded_inverse
+            from cfa_tool.estimation.fiml import MissingParts, _trace_weights
             from cfa_tool.inference.design import design_meat
             from cfa_tool.inference.robust_missing import _model_directions, _moment_directions, moment_scores
 
             delta = _model_directions(likelihood, theta, g)
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T])
-            scores, parts = moment_scores(likelihood.patterns[g], mats.implied_mean(), mats.implied_covariance())
-            V = parts.information(*_moment_directions(model.p))
+            data, sigma = likelihood.patterns[g], mats.implied_covariance()
+            scores = moment_scores(data, mats.implied_mean(), sigma)
+            # the expected information in the moments, the missing-data patterns held fixed (valid when answers are
+            # missing completely at random; the robust standard errors take the observed one since session 12:
+            # aligning these score tests with them is left for the next round)
+            A, _ = embedded_inverse(sigma, data.observed)
+            w_rows = data.counts / data.counts.sum()
+            V = MissingParts(np.zeros((model.p, model.p)), np.zeros(model.p), _trace_weights(A, A, w_rows),
+                             np.tensordot(w_rows, A, axes=1)).information(*_moment_directions(model.p))
         X = np.zeros((delta.shape[0], q + k))
         X[:, :q] = delta
         X[:, q + mine] = extra
