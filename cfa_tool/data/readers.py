@@ -26,7 +26,7 @@ import pandas as pd
 from cfa_tool.data.kept_rows import SHEET_COLUMNS, row_naming, rows_listed
 from cfa_tool.data.missing_codes import apply_missing_codes
 from cfa_tool.data.moments import column_dtypes, file_rows_index, row_numbers, stored_column
-from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, written_non_answers
+from cfa_tool.data.non_answers import declared_missing, labelled_non_answers, says_no_answer, written_non_answers
 from cfa_tool.data.renamed_columns import ColumnRename, names_in_file, rename_note, renamed_frame
 from cfa_tool.errors import DataError, printable
 from cfa_tool.options import Option
@@ -985,7 +985,10 @@ def _check_header_rows(frame: pd.DataFrame, where: str, decimal_comma: bool, tex
             continue
         numbers = _as_numbers(column, decimal_comma)
         present = column.notna().to_numpy() & column.map(lambda v: not (isinstance(v, str) and not v.strip())).to_numpy()
-        text_cells = present & numbers.isna().to_numpy()
+        # a word that says no answer ('Don't know') is a respondent's cell, never header text (review s12: a first
+        # respondent answering 'Don't know' throughout was called a header row to skip)
+        text_cells = present & numbers.isna().to_numpy() & ~column.map(
+            lambda v: isinstance(v, str) and says_no_answer(v)).to_numpy(dtype=bool)
         if text_cells[MAX_HEADER_ROWS:].any() and (wanted is None or str(name) in wanted):
             lead = _words_lead(column, present, (listed or {}).get(str(name)))
             if lead is not None:
@@ -1035,7 +1038,6 @@ def _words_lead(column: pd.Series, present: np.ndarray, words: frozenset[str] | 
     says no answer, or, without a statement, a cell unlike every other cell of the column; None when the column is
     no column of answers (without a statement: more than MAX_ANSWER_WORDS different cells below those rows, or
     cells that repeat too little, such as comments or ids)."""
-    from cfa_tool.data.non_answers import says_no_answer
     from cfa_tool.language.spec import answer_key
 
     cells = [v.strip() if isinstance(v, str) else v for v in column.tolist()]

@@ -518,8 +518,9 @@ def helpers_sentence(helpers: tuple[str, ...]) -> str:
             f"in Graham's (2003) saturated-correlates form, {linked} and outside the model, so that answers need be "
             f"missing at random only given the items and {'these variables' if many else 'this variable'}, while the "
             f"model's degrees of freedom, chi-square and fit indices describe the model alone (the baseline model "
-            f"keeping the auxiliary variables' correlations free, Savalei & Bentler, 2009; the log-likelihood and "
-            f"information criteria include them, so they compare only fits with the same auxiliary variables).")
+            f"keeping the auxiliary variables' correlations free, Savalei & Bentler, 2009; the log-likelihood includes "
+            f"them and the information criteria's penalty counts the model's parameters only, so both compare only "
+            f"fits with the same auxiliary variables).")
 
 
 def _pairs_by_group(result) -> str:

@@ -95,7 +95,8 @@ def quality_table(result, k: int) -> ReportTable:
             cols.append(("Item sum ω", "r"))
             rows = [row + [unit(omega[name]) if name in omega else "—"] for row, name in zip(rows, q.factors)]
             note += (" Item sum ω: the reliability of the keyed sum of the answers' codes (and of the item mean, its "
-                     "multiple) from the fitted thresholds, loadings and factor variance (Green & Yang 2009), as the "
+                     "multiple) of rows that answered every item, from the fitted thresholds, loadings and factor "
+                     "variance (Green & Yang 2009; a prorated sum of fewer items is less reliable), as the "
                      "fit gives it: the agreement of the sum with its own true score, not with the factor, so it is "
                      "not comparable with the posterior means' reliability beside it; — where a factor has no item "
                      "sum.")
@@ -121,7 +122,8 @@ def quality_table(result, k: int) -> ReportTable:
                 + (" Item sum ω: the reliability of each factor's keyed item sum (and of the item mean, its multiple), "
                    "omega (McDonald 1999) as the fit gives it, the share of the sum's variance due to the factor; for "
                    "items that load on one factor only it is the squared correlation of the sum with the factor, as "
-                   "the methods' reliabilities are; — where a factor has no item sum." if sums is not None else "")
+                   "the methods' reliabilities are; it is that of rows that answered every item (a prorated sum of "
+                   "fewer items is less reliable); — where a factor has no item sum." if sums is not None else "")
                 + _one_item_sentence(result.fit))
     title = "Quality of the scores" + _where(q) + ("" if ordinal else ": determinacy, and reliability by method")
     return _table(f"score_quality_{k}", title, cols, rows, note,

@@ -103,7 +103,9 @@ class ScoreTests(Choice):
     #: a robust or design-based test, and ordinal items: the score statistic over the robust (sandwich) variance of
     #: the score (Satorra 1989), chi-square(1) without normality
     ROBUST = ("robust", "robust", "robust score tests (the generalized score test of Satorra 1989), which do not "
-                                  "assume normal data", False)
+                                  "assume normal data (with full-information ML and rows with gaps they are built on "
+                                  "the expected information, which assumes answers missing completely at random)",
+              False)
 
 
 @dataclass(frozen=True)

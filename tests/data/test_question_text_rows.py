@@ -155,3 +155,18 @@ def test_rare_answers_in_the_first_row_of_data_are_no_header_row(tmp_path):
     numbers.to_csv(path, index=False)
     loaded = read_data(path)
     assert len(loaded.frame) == N and loaded.frame.loc[loaded.frame.index[0], "site"] == "Depot 7"
+
+
+def test_a_first_respondent_who_answered_dont_know_throughout_is_no_header_row(tmp_path):
+    # review s12: a first respondent with "Don't know" in every item was called a further header row to skip
+    # (following the advice would have dropped a respondent); the same row further down was read as gaps
+    from cfa_tool.resources import resource_dir
+
+    rows = pd.read_csv(resource_dir("demo") / "rider_survey.csv").astype(object)
+    items = list(rows.columns[2:])
+    rows.loc[0, items] = "Don't know"
+    path = tmp_path / "dk.csv"
+    rows.to_csv(path, index=False)
+    result = cfa_tool.fit((resource_dir("models") / "rider_three_factors.cfa").read_text(), path)
+    assert result.n_obs == len(rows) - 1  # the row answers nothing: left out as such, not refused as a header
+    assert sum(len(f.rows) for f in result.data.non_answers) == len(items)
