@@ -77,9 +77,12 @@ class LoadedData:
     weights: np.ndarray | None = None
 
     def column_hint(self) -> str:
-        """Words for a message about a missing column: which sheet of a workbook of several was read, and the row
-        an option said holds the column names."""
-        return self.sheet_hint() + self.names_row_hint
+        """Words for a message about a missing column: the columns read under new names (a name the model uses may
+        be one a rename took away), which sheet of a workbook of several was read, and the row an option said holds
+        the column names."""
+        renamed = ("; its columns read under new names: " + ", ".join(
+            f"'{printable(r.old)}' as '{printable(r.new)}'" for r in self.renamed)) if self.renamed else ""
+        return renamed + self.sheet_hint() + self.names_row_hint
 
     def sheet_hint(self) -> str:
         """Words for a message about a missing column: which sheet of a workbook of several was read."""

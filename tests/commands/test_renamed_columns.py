@@ -268,3 +268,13 @@ def test_an_excel_cell_is_named_by_its_letter_in_a_renamed_column(tmp_path):
         cfa_tool.fit(MODEL, str(path), rename={"x3r": "x3"})
     loaded = read_data(path, renames=(ColumnRename("x3r", "x3"),))
     assert "x3" in loaded.frame.columns and "x3r" not in loaded.frame.columns
+
+
+def test_a_model_name_that_a_rename_took_away_is_said_to_be_renamed():
+    # review s12: `--rename x1=first` with a model naming x1 said only "unknown variable 'x1' (not a column of ...)",
+    # though x1 is a column of the file: the message names the renames
+    from cfa_tool.errors import ModelError
+
+    with pytest.raises(ModelError, match=r"unknown variable 'x1' \(not a column of holzinger_swineford_1939\.csv; "
+                                         r"its columns read under new names: 'x1' as 'first'\)"):
+        cfa_tool.fit(MODEL, HS_FILE, rename={"x1": "first"})
