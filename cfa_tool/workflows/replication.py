@@ -571,8 +571,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                                              rename=validation_rename, rename_option=Option.VALIDATION_RENAME)[1:])
     (cal_frame, cal_source), (val_frame, val_source) = [(loaded.frame, loaded.source) for loaded in read]
     _not_the_same_rows(spec, cal_frame, val_frame, cal_source, val_source)
-    screens = list(read)
-    with odd_values_named(next((s for s in screens if s.odd_values), screens[0])):
+    with odd_values_named(next((s for s in read if s.odd_values), read[0])):
         if ordinal_items:
             cal_moments = _ordinal_moments(spec, cal_frame, cal_source, ordinal_items, pairwise)
             val_moments = _ordinal_moments(spec, val_frame, val_source, ordinal_items, pairwise)
@@ -585,7 +584,7 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                                        _moments(spec, val_frame, val_source, missing), **options)
     left_out = tuple(p for r, source in ((result.calibration_result, cal_source), (result.loose, val_source))
                      for p in _left_out(r.data.rows_dropped, r.data.rows_read, source, r.method.missing, ordinal_items))
-    return replace(result, data_problems=tuple(dict.fromkeys(p for s in screens for p in data_problems(s, spec))) + left_out,
+    return replace(result, data_problems=tuple(dict.fromkeys(p for s in read for p in data_problems(s, spec))) + left_out,
                    notes=tuple(dict.fromkeys(n for file_notes in notes for n in file_notes)),
                    answer_coding=coding_record(spec))
 
@@ -623,15 +622,14 @@ def split_half(model: str | Path | Spec, data: pd.DataFrame | str | Path, seed: 
                                               first_data_row=first_data_row, rename=rename)  # as fit reads it
     notes = tuple(notes)
     frame, source = loaded.frame, loaded.source
-    screen = loaded
-    with odd_values_named(screen):
+    with odd_values_named(loaded):
         pair, halves = _split_half(spec, frame, source, seed, ordinal_items, method, missing, pairwise, **options)
     split = pair[0].calibration_result.n_obs + pair[0].loose.n_obs
     rows = SplitRows(split, len(frame), split < len(frame.dropna(subset=list(spec.observed_names), how="all")),
                      *halves, filters=loaded.row_filters,
                      rows_in_file=len(loaded.read_frame) if loaded.read_frame is not None else None)
     # the rows left out before the split (the halves hold complete rows only): fit's caution, after the data's
-    problems = data_problems(screen, spec) + _left_out(len(frame) - split, len(frame), source,
+    problems = data_problems(loaded, spec) + _left_out(len(frame) - split, len(frame), source,
                                                        MissingData.LISTWISE if rows.complete_only else None, ordinal_items)
     return tuple(replace(rep, data_problems=problems, split=rows, notes=notes, answer_coding=coding_record(spec))
                  for rep in pair)
