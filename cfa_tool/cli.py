@@ -15,7 +15,7 @@ import sys
 import warnings
 
 from cfa_tool.errors import CfaError, ModelError, printable
-from cfa_tool.options import on_command_line
+from cfa_tool.options import Option, on_command_line
 
 PROG = "cfa-tool"
 
@@ -45,10 +45,23 @@ class _Once(argparse.Action):
     def __call__(self, parser, namespace, values, option_string=None):
         seen = namespace.__dict__.setdefault("_given_options", set())
         if self.dest in seen:
-            parser.error(f"{option_string} is given twice; give it once"
-                         + (" (several values go in one comma-separated list)" if self.dest == "missing_codes" else ""))
+            parser.error(f"{option_string} is given twice; give it once" + _second_time_hint(parser, self.dest))
         seen.add(self.dest)
         setattr(namespace, self.dest, values)
+
+
+def _second_time_hint(parser: argparse.ArgumentParser, dest: str) -> str:
+    """What to do instead of giving an option twice: several missing codes go in one list; samples in two data
+    files go in one file with a column naming each row's sample (the commands that take groups), or are compared
+    by 'replicate'."""
+    if dest == "missing_codes":
+        return " (several values go in one comma-separated list)"
+    if dest != "data":
+        return ""
+    grouped = Option.GROUP_COLUMN.flag in parser._option_string_actions
+    together = (f"to analyse samples from two files together, put their rows in one file with a column naming each "
+                f"row's sample and give that column with {Option.GROUP_COLUMN.flag}; " if grouped else "")
+    return f" ({together}to test a model fitted on one file in another, use '{PROG} replicate')"
 
 
 def build_parser(command: str | None = None) -> argparse.ArgumentParser:

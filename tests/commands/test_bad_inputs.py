@@ -38,13 +38,15 @@ def corpus(tmp_path, monkeypatch) -> Path:
     return work
 
 
-def _check(code, err, expected_code, words, before, work):
+def _check(code, err, expected_code, words, before, work, absent=()):
     assert code == expected_code, err
     assert "Traceback" not in err
     first = err.splitlines()[0]
     assert first.startswith("cfa-tool"), first
     for word in words:
         assert word in first, (word, first)
+    for word in absent:  # advice that cannot apply to this command
+        assert word not in first, (word, first)
     assert _snapshot(work) == before, "a file was created or changed"
 
 
@@ -68,7 +70,7 @@ def _argv(case: dict) -> list[str]:
 def test_bad_input(case, corpus, capsys):
     before = _snapshot(corpus)
     code, _, err = _run(_argv(case), capsys)
-    _check(code, err, case["exit"], case["words"], before, corpus)
+    _check(code, err, case["exit"], case["words"], before, corpus, case.get("absent", ()))
 
 
 def test_ten_megabyte_model_file(corpus, capsys):
