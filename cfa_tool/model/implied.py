@@ -156,12 +156,15 @@ class StructuredModel:
         J, offset = self._J[group][take], self._offset[group][take]
         nonzero = J != 0
         free = nonzero.any(axis=1)
-        if not (nonzero.sum(axis=1) <= 1).all() or not (J[free].max(axis=1) == 1.0).all() or (offset[free] != 0).any():
+        # each free row has one nonzero (checked first), so its sum is that entry (a sum, unlike a maximum, also takes
+        # a model with no free parameter: every row fixed)
+        if not (nonzero.sum(axis=1) <= 1).all() or not (J[free].sum(axis=1) == 1.0).all() or (offset[free] != 0).any():
             return None
         buffer = np.zeros(size)
         buffer[at[~free]] = offset[~free]
         buffer.setflags(write=False)
-        return buffer, at[free], nonzero[free].argmax(axis=1)
+        parameter = nonzero[free].argmax(axis=1) if J.shape[1] else np.zeros(0, dtype=np.intp)
+        return buffer, at[free], parameter
 
     def matrices(self, theta: np.ndarray, group: int = 0) -> ModelMatrices:
         """A group's matrices at theta; at a stack of parameter vectors (R, q), stacks of matrices (R, ...)

@@ -105,6 +105,8 @@ class ScaledFactor:
 
     def inverse_matrix(self) -> np.ndarray:
         """H^-1, exactly symmetric: what :func:`scaled_inverse` gives."""
+        if self.inverse.size == 0:  # no parameter (LAPACK refuses a 0 x 0 matrix, and says so on the terminal)
+            return np.zeros((0, 0))
         lower, info = lapack.dlauum(self.inverse, lower=1)  # L^-T L^-1 in the lower triangle
         if info != 0:
             raise np.linalg.LinAlgError("the triangular product failed")
@@ -115,6 +117,8 @@ class ScaledFactor:
 
 def scaled_factor(H: np.ndarray) -> ScaledFactor | None:
     """:class:`ScaledFactor` of H, or None when the scaled H is not positive definite (or holds NaN)."""
+    if H.size == 0:  # no parameter: the empty factor (LAPACK refuses a 0 x 0 matrix, and says so on the terminal)
+        return ScaledFactor(np.zeros(0), np.zeros((0, 0)))
     d = _scales(H)
     found = cholesky_log_det(H * (d[:, None] * d))
     if found is None:

@@ -80,9 +80,10 @@ def invariance_power_report(result) -> Report:
     rows, values = [], []
     for d in result.designs:
         for s in d.steps:
+            counted = s.role is not StepRole.NOT_TESTED  # a step of 0 df rejects nothing: no share to read
             rows.append([_sizes(labels, d.sizes)] * several + [
-                f"{s.level} against {s.versus}", s.role.value, str(s.df), unit(s.share, 2),
-                unit(s.standard_error, 3), unit(s.approximate_power, 2), str(s.inadmissible)])
+                f"{s.level} against {s.versus}", s.role.value, str(s.df), unit(s.share, 2) if counted else "",
+                unit(s.standard_error, 3) if counted else "", unit(s.approximate_power, 2), str(s.inadmissible)])
             values.append([_sizes(labels, d.sizes), s.level, s.versus, s.role.value, s.df, s.share,
                            s.standard_error, s.approximate_power, s.noncentrality, s.inadmissible])
     table = _table("invariance_power", "Rejections of each step of the ladder",

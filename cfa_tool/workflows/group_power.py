@@ -45,6 +45,7 @@ class StepRole(Enum):
     POWER = "power"  # the step's model misfits the population and the model before it does not
     FALSE_ALARM = "false-alarm rate"  # the step's model reproduces the population exactly
     AFTER_MISFIT = "rejection rate after a misfitting step"  # the model before it already misfits the population
+    NOT_TESTED = "nothing: the step adds no equality"  # 0 df (e.g. every loading fixed in the model file)
 
 
 @dataclass(frozen=True)
@@ -175,6 +176,22 @@ def _differences_tested(spec: Spec, population: GroupPopulation, highest: str) -
         raise ModelError(message, location, spec.source_line(location))
 
 
+def _fixed_differences(spec: Spec, population: GroupPopulation) -> None:
+    """An error at an 'in group' 'fix' statement that makes a group's population differ: the ladder's models keep
+    every 'fix' (only 'start' values are population values alone, :func:`_ladder_of`), so each model fitted holds
+    the difference and no step tests it; a plan with it would report a false-alarm rate where the groups differ."""
+    for d in population.differences:
+        word = {"residual_variance": "variance", "residual_covariance": "covariance"}.get(d.kind, d.kind)
+        ref = next((r for s in spec.fixed for r in s.refs if r.group == d.group and r.kind == word
+                    and sorted(r.names) == sorted(d.variables)), None)
+        if ref is None:
+            continue
+        message = (f"'fix' holds {ref} at {d.value:g} (against {d.reference_value:g} in group "
+                   f"'{population.labels[0]}') in every model the ladder fits, so no step tests the difference; write "
+                   f"'start' to give it as the population value, which the fitted models then estimate")
+        raise ModelError(message, ref.location, spec.source_line(ref.location))
+
+
 def _fit_ladder(ladder: tuple[tuple[str, Spec], ...], groups: list, alpha: float | None) -> list:
     """Each level's (estimation, result, difference test against the level before or None), fitted and tested
     as the invariance command fits and tests them (:class:`~cfa_tool.workflows.invariance.NormalLadder`); the
@@ -293,6 +310,7 @@ def invariance_power(model, group_sizes, replications: int = 500, seed: int = 1,
                               f"values per simulated data set; plan with smaller groups")
     ladder = _ladder_of(spec, highest_level)
     population = group_population(spec, labels, spec_of_level(spec, LEVELS[0][1], spec.noninvariant))
+    _fixed_differences(spec, population)
     _differences_tested(spec, population, highest_level)
     truth = [_population_steps(population, ladder, design) for design in designs]
     # one design keeps the seeds one sample size has; several take one stream per design from the same seed
@@ -320,12 +338,13 @@ def _design_power(ladder, design: tuple[int, ...], replications: int, draws: lis
     for k in range(1, len(ladder)):
         df_before, lam_before, holds_before = truth[k - 1]
         df, lam, holds = truth[k]
-        role = (StepRole.FALSE_ALARM if holds else StepRole.POWER if holds_before else StepRole.AFTER_MISFIT)
         step_df, step_lam = df - df_before, max(lam - lam_before, 0.0) if not holds else 0.0
+        role = (StepRole.NOT_TESTED if step_df == 0 else StepRole.FALSE_ALARM if holds else
+                StepRole.POWER if holds_before else StepRole.AFTER_MISFIT)
         count, named = counted_problems(d.problems[k] for d in ok)
         steps.append(StepPower(ladder[k][0], ladder[k - 1][0], role, step_df, step_lam,
                                # after a misfitting step the noncentral approximation does not hold (review s11)
-                               float("nan") if role is StepRole.AFTER_MISFIT else
+                               float("nan") if role in (StepRole.AFTER_MISFIT, StepRole.NOT_TESTED) else
                                approximate_power(step_df, step_lam, alpha), sum(d.rejected[k - 1] for d in ok),
                                len(ok), count, named))
     count, named = counted_problems(d.problems[0] for d in ok)

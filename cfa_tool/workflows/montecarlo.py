@@ -146,6 +146,10 @@ def monte_carlo_power(spec: Spec, n_obs: int | Sequence[int] | str, replications
             raise OptionError(f"{n:,} rows of {p} variables are more than {check.MAX_SIMULATED_CELLS:,} values per "
                               f"simulated data set; plan with a smaller sample size")
     population = with_categories(population_from_spec(spec, population), spec, categories, "power-simulation")
+    if len(population.theta) == 0:  # nothing is estimated, so there is no test whose power to count
+        raise OptionError("power-simulation counts how often each free parameter's test rejects zero, and the model "
+                          "fixes every parameter; give the population values with 'start' statements instead (a "
+                          "start value is the population value, and the parameter stays free to be estimated)")
     weighting = ordinal_estimator_option(ordinal_estimator, population.ordinal_items,
                                          f"an 'ordinal' statement, {check.Option.CATEGORIES} or an ordinal fit's "
                                          f"{check.Option.POPULATION_FROM}")
