@@ -21,6 +21,7 @@ from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
 from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
+from cfa_tool.data.halves import RandomHalf, half_kept
 from cfa_tool.data.readers import (HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows,
                                    first_data_option, read_data, with_no_answers_read)
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame
@@ -167,11 +168,12 @@ def read_inputs(model: str | Path | Spec, data: pd.DataFrame | str | Path, sheet
     return spec, loaded.frame, loaded.source
 
 
-def keep_option(keep) -> list[str]:
-    """Row filters: one filter as text, or a list of them."""
+def keep_option(keep) -> list:
+    """Row selections: one filter as text (or one half of a halves file, data.halves.RandomHalf), or a list of
+    them."""
     if keep is None:
         return []
-    if isinstance(keep, str):
+    if isinstance(keep, (str, RandomHalf)):
         return [keep]
     if not isinstance(keep, (list, tuple)):
         raise OptionError(f"keep must be a row filter (text) or a list of them, not {type(keep).__name__}")
@@ -208,7 +210,10 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     columns read under new names (the option --rename, data.renamed_columns), before anything looks at the names."""
     keep = keep_option(keep)
     spec = load_spec(model)
-    filters = [parse_filter(k) for k in keep]
+    halves = [k for k in keep if isinstance(k, RandomHalf)]
+    if len(halves) > 1:
+        raise OptionError(f"one half of a halves file at a time, not {len(halves)} ({', '.join(map(str, halves))})")
+    filters = [parse_filter(k) for k in keep if not isinstance(k, RandomHalf)]
     loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row, names_option,
                            first_data_row, rename, rename_option)
     frame = loaded.frame
@@ -221,6 +226,9 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         frame = frame.set_axis(columns, axis=1)
     notes: list[str] = list(loaded.notes)
     loaded, filter_notes = rows_kept(replace(loaded, frame=frame) if frame is not loaded.frame else loaded, filters)
+    if halves:  # the halves were drawn from the rows the filters kept
+        loaded = half_of(loaded, halves[0], data)
+        notes.append(loaded.row_filters[-1].note())
     frame, cautions, filters = loaded.frame, loaded.cautions, loaded.row_filters
     notes += [f"{loaded.source}: {note}" for note in filter_notes] if name_the_file else filter_notes
     check_columns(spec, columns, loaded.source, loaded.column_hint())
@@ -247,6 +255,15 @@ def rows_kept(loaded: LoadedData, filters) -> tuple[LoadedData, list[str]]:
     frame, notes, filters = apply_filters(loaded.frame, list(filters), loaded.source, loaded.value_labels)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame), read_frame=loaded.frame,
                    row_filters=tuple(filters)), notes
+
+
+def half_of(loaded: LoadedData, choice: RandomHalf, data) -> LoadedData:
+    """``loaded`` with only the rows of one half of a halves file (data.halves.half_kept, checked against the data
+    file ``data``), the half joining the row filters that the reports name."""
+    frame, half = half_kept(loaded.frame, choice, data, loaded.source)
+    return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame),
+                   read_frame=loaded.read_frame if loaded.read_frame is not None else loaded.frame,
+                   row_filters=tuple(loaded.row_filters) + (half,))
 
 
 def kept_cautions(cautions: tuple, frame: pd.DataFrame) -> tuple:
