@@ -31,11 +31,8 @@ HALVES_COLUMNS = ("row", "half", "seed", "data_file", "data_sha256")
 class RandomHalf:
     """The choice of one half of a halves file: ``path`` the file, ``name`` the half ('confirmation')."""
 
-    path: str
+    path: str | Path
     name: str
-
-    def __str__(self) -> str:
-        return f"{self.name} half of {self.path}"
 
 
 @dataclass(frozen=True)
@@ -198,5 +195,6 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str) -> tup
                         f"that drew them")
     mask = np.isin(numbers, saved.rows[np.asarray(saved.halves) == choice.name])
     chosen = frame[mask]
-    chosen.attrs[KEPT_BY] = tuple(frame.attrs.get(KEPT_BY, ())) + (str(choice),)
-    return chosen, HalfRows(shown, choice.name, saved.seed, int(mask.sum()), len(numbers))
+    half = HalfRows(shown, choice.name, saved.seed, int(mask.sum()), len(numbers))
+    chosen.attrs[KEPT_BY] = tuple(frame.attrs.get(KEPT_BY, ())) + (half.text,)
+    return chosen, half

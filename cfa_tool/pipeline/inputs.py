@@ -213,7 +213,7 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     spec = load_spec(model)
     halves = [k for k in keep if isinstance(k, RandomHalf)]
     if len(halves) > 1:
-        raise OptionError(f"one half of a halves file at a time, not {len(halves)} ({', '.join(map(str, halves))})")
+        raise OptionError(f"one half of a halves file at a time, not {len(halves)} ({', '.join(f'{h.name} of {h.path}' for h in halves)})")
     filters = [parse_filter(k) for k in keep if not isinstance(k, RandomHalf)]
     loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row, names_option,
                            first_data_row, rename, rename_option)

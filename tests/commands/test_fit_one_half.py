@@ -14,19 +14,13 @@ import pandas as pd
 import pytest
 
 import cfa_tool
-from cfa_tool.cli import main
 from cfa_tool.data.halves import RandomHalf
 from cfa_tool.errors import DataError, OptionError
+from tests.commands.test_halves_file import _run
 from tests.conftest import DATASETS
 
 HS_FILE = DATASETS / "holzinger_swineford_1939.csv"
 EDITED = "factor visual: x1, x2, x3\nfactor textual: x4, x5, x6\nfactor speed: x7, x8, x9\n"
-
-
-def _run(argv, capsys):
-    code = main([str(a) for a in argv])
-    out = capsys.readouterr()
-    return code, out.out, out.err
 
 
 @pytest.fixture()
