@@ -22,6 +22,7 @@ import pandas as pd
 from cfa_tool.data.kept_rows import KEPT_BY, row_naming, rows_listed
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.errors import DataError, OptionError, printable
+from cfa_tool.options import Option
 
 #: the columns of a halves file, in order
 HALVES_COLUMNS = ("row", "half", "seed", "data_file", "data_sha256")
@@ -130,8 +131,8 @@ def read_halves(path) -> SavedHalves:
         earlier = bool(lines) and tuple(c.strip() for c in lines[0]) == HALVES_COLUMNS[:2]
         raise DataError(f"{shown}, line 1: " + (
             "a halves file of an earlier version, without the seed and the data file's checksum that a half is "
-            "checked by; write the halves again (explore --split SEED --halves-file NEW.csv draws the same halves "
-            "from as many rows)" if earlier else
+            "checked by; write the halves again (cfa-tool explore --split SEED --halves-file NEW.csv draws the same "
+            "halves from as many rows)" if earlier else
             f"not a halves file (its first line must be '{','.join(HALVES_COLUMNS)}', as explore --split and "
             f"replicate --data write it with --halves-file)"))
     rows, halves, seeds, data, lines_of = [], [], set(), set(), {}
@@ -180,8 +181,8 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str) -> tup
     if fingerprint(data) != saved.data_sha256:
         raise DataError(f"{shown} holds the halves of a data file with other contents ('{printable(saved.data_file)}' "
                         f"as it was when the halves were drawn), not those of {source}: give the data file the halves "
-                        f"were drawn from; if that file was corrected since, write the halves again from it (explore "
-                        f"--split {saved.seed} --halves-file NEW.csv draws the same halves from as many rows)")
+                        f"were drawn from; if that file was corrected since, write the halves again from it (cfa-tool "
+                        f"explore --split {saved.seed} --halves-file NEW.csv draws the same halves from as many rows)")
     numbers = row_numbers(frame)
     naming = row_naming(frame)
     absent = np.setdiff1d(saved.rows, numbers)
@@ -191,8 +192,8 @@ def half_kept(frame: pd.DataFrame, choice: RandomHalf, data, source: str) -> tup
         which = (f"it lists {rows_listed(absent, naming=naming)}, not among them" if len(absent) else
                  f"it leaves out {rows_listed(unlisted, naming=naming)}")
         raise DataError(f"{shown} split {len(saved.rows)} rows, and {source} holds {len(numbers)}{kept}; {which}: the "
-                        f"halves are of another selection of rows; give the sheet, row and --keep options of the run "
-                        f"that drew them")
+                        f"halves are of another selection of rows; give the {Option.SHEET}, {Option.NAMES_ROW}, "
+                        f"{Option.FIRST_DATA_ROW} and {Option.KEEP} of the run that drew them")
     mask = np.isin(numbers, saved.rows[np.asarray(saved.halves) == choice.name])
     chosen = frame[mask]
     half = HalfRows(shown, choice.name, saved.seed, int(mask.sum()), len(numbers))
