@@ -110,6 +110,10 @@ class ProblemKind(enum.Enum):
     # not of the solution but of the rows scored: ids that name several rows, in a file meant to be merged by id
     REPEATED_IDS_SCORED = ("ids that name several rows", "repeated ids", False)
     ANSWERS_BEYOND_FITTED = ("answers beyond the fitted rows", "answers beyond the fit's", False)
+    # not of a solution but of the rows a check screened: gaps that leave full-information ML's saturated model
+    # without an estimate (pairs of items no row answers together, or too few answers together), which a fit stops at
+    # (assessment.missingness.sparse_answers_problem)
+    SPARSE_ANSWERS = ("answers too sparse for full-information ML", "too few answers together", False)
 
 
 #: problems not of the solution but of the sampling design it was fitted under (the methods paragraph states them
@@ -285,6 +289,8 @@ class Problem:
             K.GROUP_WEIGHTED_OUT: "a group every row of which has weight 0, left out of the analysis",
             K.UNKNOWN_GROUPS_SCORED: "rows in groups the earlier fit does not have, which get no scores",
             K.ANSWERS_BEYOND_FITTED: "answers outside the range of the rows the earlier fit analysed",
+            K.SPARSE_ANSWERS: "rows with gaps that answer too few items together for the saturated model of "
+                              "full-information ML",
             K.COPIED_ROWS: f"{v.split('.')[0]} rows identical in every column to earlier rows (kept in the analysis)",
             K.SAME_ANSWER_ROWS: "rows that gave the same answer to every item, reverse-worded ones included (kept in "
                                 "the analysis)",

@@ -91,3 +91,54 @@ def completely_at_random_test(samples: list[tuple[str | None, PatternData, np.nd
                    for label, d, f in parts) if len(parts) > 1 else ()
     return CompletelyAtRandomTest(float(d2), int(df), float(dist.chi2_sf(d2, df)),
                                   int(sum(len(data.counts) for _, data, _, _ in samples)), groups)
+
+
+def never_together(values: np.ndarray, names: tuple[str, ...]) -> tuple[tuple[str, str], ...]:
+    """The pairs of items (columns of ``values``, NaN where a row gave no answer) that no row answers both, in the
+    items' order: their covariance has no data, so the saturated model of full-information ML has no estimate."""
+    answered = (~np.isnan(values)).astype(float)
+    together = answered.T @ answered
+    rows, columns = np.nonzero(np.triu(together == 0, k=1) & (np.diag(together)[:, None] > 0)
+                               & (np.diag(together)[None, :] > 0))
+    return tuple((names[i], names[j]) for i, j in zip(rows, columns))
+
+
+def sparse_answers_problem(values: np.ndarray, names: tuple[str, ...], failure: str | None = None,
+                           group: str | None = None):
+    """The caution of a data check (assessment.admissibility.Problem) when the saturated model of full-information
+    ML (EM: Dempster, Laird & Rubin 1977) cannot be estimated from these rows with gaps: pairs of items no row answers
+    together (:func:`never_together`), or, when ``failure`` says why EM failed, the pair answered together by the
+    fewest rows and the rows that answer every item.  A fit of these rows would stop; the check reports them.
+    ``group``: the group's label (the views name it before the explanation)."""
+    from cfa_tool.assessment.admissibility import Problem, ProblemKind
+    from cfa_tool.errors import printable
+
+    answered = (~np.isnan(values)).astype(float)
+    rows = answered[answered.any(axis=1)]
+    complete = int(rows.all(axis=1).sum()) if len(rows) else 0
+    pairs = never_together(values, names)
+    if pairs:
+        shown = ", ".join(f"'{printable(a)}' and '{printable(b)}'" for a, b in pairs[:5])
+        more = f" (and {len(pairs) - 5} more pairs)" if len(pairs) > 5 else ""
+        which = f"both {shown}" if len(pairs) == 1 else f"both items of the pairs {shown}{more}"
+        said = (f"No row answers {which}, so {'their covariance has' if len(pairs) == 1 else 'those covariances have'} "
+                f"no data: full-information ML cannot estimate the saturated model of these rows, and a fit of them "
+                f"stops.")
+        value = float(len(pairs))
+    else:
+        together = rows.T @ rows
+        upper = np.triu_indices(len(names), k=1)
+        least = int(np.argmin(together[upper]))
+        i, j = upper[0][least], upper[1][least]
+        said = (f"The rows with gaps answer too few items together for the saturated model of "
+                f"full-information ML ({failure or 'it has no estimate'}): the fewest rows answering a pair of items "
+                f"are {int(together[i, j])} ('{printable(names[i])}' and '{printable(names[j])}'), and {complete} of "
+                f"the {len(rows)} rows answer all {len(names)} items; a fit of these rows stops.")
+        value = float(together[i, j])
+    from cfa_tool.options import Option
+
+    advice = (f"analyse fewer items ({'one of each pair never answered together' if pairs else 'those answered together by few rows'}), "
+              f"or gather rows that answer them together; leaving out the rows with gaps "
+              f"({Option.INCOMPLETE_ROWS.given('listwise')}) would keep {complete} complete row{'s' if complete != 1 else ''}"
+              + (f"; or leave the group out with a row filter ({Option.KEEP})" if group is not None else ""))
+    return Problem(ProblemKind.SPARSE_ANSWERS, (), value, said, advice, group)

@@ -6,7 +6,7 @@ import argparse
 from pathlib import Path
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import add_report_options, check_output, emit, inputs_of
+from cfa_tool.commands.common import add_half_option, add_report_options, kept_rows, check_output, emit, inputs_of
 
 
 def add_parser(sub) -> None:
@@ -15,6 +15,7 @@ def add_parser(sub) -> None:
     check.add_argument("--group-column", dest="group", metavar="COLUMN", help="column whose values name the groups")
     O.add_renamed(check, "--group", O.GROUP_NOW)
     O.add_data_options(check)
+    add_half_option(check)
     O.add_design_options(check, "checked and stated as the fit would use it: the sum of the weights, Kish's effective "
                                 "sample size, the clusters and strata, and a caution when clusters are too few")
     add_report_options(check)
@@ -25,5 +26,5 @@ def run(args: argparse.Namespace) -> int:
 
     check_output(args, inputs_of(args))
     found = check(Path(args.model), args.data, group=args.group, sheet=args.sheet, names_row=args.names_row, first_data_row=args.first_data_row, missing_codes=args.missing_codes,
-                  keep=args.keep, rename=args.rename, **O.design_args(args))
+                  keep=kept_rows(args), rename=args.rename, **O.design_args(args))
     return emit(args, found)

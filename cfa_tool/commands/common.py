@@ -221,7 +221,7 @@ def inputs_of(args: argparse.Namespace) -> list[str]:
     """Every file the command reads: models, data, calibration and validation files."""
     names = [getattr(args, "model", None), *(getattr(args, "models", None) or ()),
              getattr(args, "data", None), getattr(args, "calibration", None), getattr(args, "validation", None),
-             getattr(args, "population_from", None)]
+             getattr(args, "population_from", None), (getattr(args, "half", None) or [None])[0]]
     return [n for n in names if n]
 
 
@@ -236,14 +236,37 @@ def add_halves_file(parser, asked: str) -> None:
                              f"never replaced")
 
 
-def halves_file(args: argparse.Namespace, halves: list[tuple[str, tuple[int, ...]]]) -> list[tuple[str, object, str]]:
-    """(option, content, message) of --halves-file when asked: one line per row split, in the order of the rows,
-    'row,half' (``halves``: each half's name and its rows' numbers, data.moments.row_numbers)."""
+def halves_file(args: argparse.Namespace, halves: list[tuple[str, tuple[int, ...]]],
+                seed: int) -> list[tuple[str, object, str]]:
+    """(option, content, message) of --halves-file when asked (data.halves.halves_text: one line per row split, in
+    the order of the rows, with the ``seed`` and the data file's name and checksum; ``halves``: each half's name and
+    its rows' numbers, data.moments.row_numbers)."""
     if not getattr(args, "halves_file", None):
         return []
-    rows = sorted((row, name) for name, numbers in halves for row in numbers)
-    text = "row,half\n" + "".join(f"{row},{name}\n" for row, name in rows)
-    return [(HALVES_FILE, text, f"The rows of each half written to {args.halves_file}")]
+    from cfa_tool.data.halves import halves_text
+
+    return [(HALVES_FILE, halves_text(halves, seed, args.data), f"The rows of each half written to {args.halves_file}")]
+
+
+HALF = "--half"
+
+
+def add_half_option(parser) -> None:
+    """The option that analyses one half of a halves file (data.halves.RandomHalf)."""
+    parser.add_argument(HALF, nargs=2, metavar=("HALVES.csv", "NAME"), default=None,
+                        help="analyse only the rows of one random half that explore --split (or replicate --data) "
+                             "wrote with --halves-file, such as: --half halves.csv confirmation; the halves file is "
+                             "checked against the data file (the same contents and rows, after the --keep filters of "
+                             "the run that drew them), and every report names the half, its rows and the seed")
+
+
+def kept_rows(args: argparse.Namespace) -> list:
+    """The row selections of the command line: the --keep filters, then the half of --half (drawn from the rows the
+    filters keep)."""
+    from cfa_tool.data.halves import RandomHalf
+
+    half = getattr(args, "half", None)
+    return list(getattr(args, "keep", None) or []) + ([RandomHalf(*half)] if half else [])
 
 
 def check_output(args: argparse.Namespace, inputs: list[str]) -> dict:

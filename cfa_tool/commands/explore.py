@@ -6,7 +6,7 @@ from __future__ import annotations
 import argparse
 
 from cfa_tool.commands import options as O
-from cfa_tool.commands.common import HALVES_FILE, add_halves_file, add_report_options, check_files, emit_report, \
+from cfa_tool.commands.common import HALF, HALVES_FILE, add_halves_file, add_report_options, check_files, emit_report, \
     halves_file, require_suffix, say
 
 
@@ -71,7 +71,16 @@ def run(args: argparse.Namespace) -> int:
     files = [("--draft", result.draft_text, f"Draft model written to {args.draft}")] if args.draft else []
     if result.split is not None:
         files += halves_file(args, [("exploration", result.split.exploration_rows),
-                                    ("confirmation", result.split.confirmation_rows)])
+                                    ("confirmation", result.split.confirmation_rows)], result.split.seed)
+        if files[-1:] and files[-1][0] == HALVES_FILE:  # the way to fit an edited draft on the confirmation half
+            import shlex
+
+            from cfa_tool.options import Option
+
+            filters = f" {Option.KEEP.given(args.keep)}" if args.keep else ""
+            files[-1] = files[-1][:2] + (f"{files[-1][2]}; fit an edited model on the confirmation half alone with "
+                                         f"cfa-tool fit MODEL --data {shlex.quote(args.data)}{filters} {HALF} "
+                                         f"{shlex.quote(args.halves_file)} confirmation",)
     emit_report(args, result, [args.data, args.target, args.answers], files)  # one report for every format
     if args.draft and not result.exploration.draft.usable:
         say(args, "The draft model declares no factor (too few items per factor); it holds comments only")

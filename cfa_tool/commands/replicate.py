@@ -72,5 +72,6 @@ def run(args: argparse.Namespace) -> int:
     else:
         raise OptionError("give --calibration and --validation files, or --data FILE to split one data set in two halves")
     split = pair[0].split
-    halves = halves_file(args, [("A", split.half_a), ("B", split.half_b)]) if split is not None else []
+    halves = halves_file(args, [("A", split.half_a), ("B", split.half_b)],
+                         1 if args.seed is None else args.seed) if split is not None else []
     return emit(args, Replications(tuple(pair)), halves)

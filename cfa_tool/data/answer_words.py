@@ -53,6 +53,22 @@ def _code_of(value: object, words: dict[str, float], numbers: dict[float, float]
     return (code, None) if code is not None else (np.nan, "number")
 
 
+#: ``frame.attrs`` key of a frame whose items 'answers' statements coded: each such item with the (word, number, code)
+#: its statement lists (as :func:`coding_record` lists them), so that a message about its codes can suggest a
+#: statement of its own (data.polychoric: an empty category of ordinal groups)
+CODED_BY_STATEMENT = "coded_by_answers_statement"
+
+
+def answers_statement(answers, items: tuple[str, ...] | None = None) -> str:
+    """An 'answers' statement written in the model language: ``answers``, each (word or None, number or None, code)
+    as a statement lists them (language.spec.AnswerWord), for ``items`` (None: for every item)."""
+    from cfa_tool.language.names import written_name
+
+    listed = ", ".join((f'"{word}"' if word is not None else f"{number:.15g}") + f" = {code:.15g}"
+                       for word, number, code in answers)
+    return f"answers {listed}" + (f" for {', '.join(written_name(x) for x in items)}" if items else "")
+
+
 def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
                       only: tuple[str, ...] | None = None,
                       missing_codes: tuple[float, ...] = ()) -> tuple[pd.DataFrame, list[str]]:
@@ -104,6 +120,8 @@ def code_answer_words(spec: Spec, frame: pd.DataFrame, source: str,
             if count:
                 read_as_none.append((item, count))
         frame[item] = coded
+    frame.attrs[CODED_BY_STATEMENT] = {item: tuple((a.word, a.number, a.code) for a in coding.answers)
+                                       for item, coding in codings.items()}
     notes = answer_notes(spec, tuple(codings))
     if read_as_none:
         notes.append(missing_codes_note(source, missing_codes, read_as_none,

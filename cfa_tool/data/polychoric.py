@@ -36,6 +36,7 @@ from scipy import optimize
 
 from cfa_tool.numerics import distributions as dist
 
+from cfa_tool.data.answer_words import CODED_BY_STATEMENT, answers_statement
 from cfa_tool.data.descriptives import rare_answer_limit
 from cfa_tool.data.kept_rows import row_naming
 from cfa_tool.data.moments import numeric_columns, row_numbers
@@ -373,7 +374,8 @@ def ordinal_moments(frame: pd.DataFrame, names: tuple[str, ...], source: str,
             item_levels = np.asarray(levels[name], dtype=float)
             empty = [v for v in item_levels if v not in seen]
             if empty:
-                raise _empty_categories_error(source, {where: {name: empty}}, {name: seen})
+                raise _empty_categories_error(source, {where: {name: empty}}, {name: seen},
+                                              frame.attrs.get(CODED_BY_STATEMENT, {}))
         else:
             item_levels = seen
         if len(item_levels) < 2:
@@ -518,25 +520,33 @@ def empty_categories_in_groups(frames: list[pd.DataFrame], wheres: list[str], na
             if empty and seen:
                 found.setdefault(where, {})[name] = empty
     if found:
-        raise _empty_categories_error(source, found, {name: np.array(sorted(v)) for name, v in answered_everywhere.items()})
+        raise _empty_categories_error(source, found, {name: np.array(sorted(v)) for name, v in answered_everywhere.items()},
+                                      frames[0].attrs.get(CODED_BY_STATEMENT, {}) if frames else {})
 
 
-def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]], seen: dict) -> DataError:
+def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]], seen: dict,
+                            coded: dict | None = None) -> DataError:
     """The one message of every empty category: ``found`` maps each group's ' (group ...)' to its items' empty
-    categories, ``seen`` each item's categories answered in every group (what an empty one is recoded as)."""
+    categories, ``seen`` each item's categories answered in every group (what an empty one is recoded as), ``coded``
+    the items whose answers are words an 'answers' statement coded (data.answer_words.CODED_BY_STATEMENT): for
+    them the model file itself can merge the empty category into the nearest one answered, with a statement of the
+    item's own that gives their words one code; answers recorded as codes are recoded in a copy of the data file
+    (the model language codes words, not numbers)."""
+    coded = coded or {}
     items: dict[str, list[float]] = {}  # each item's empty categories in any group
     for by_item in found.values():
         for name, empty in by_item.items():
             items.setdefault(name, [])
             items[name] = sorted(set(items[name]) | set(empty))
-    beyond = sorted({v for name, empty in items.items() for v in empty
-                     if len(seen[name]) and (v < min(seen[name]) or v > max(seen[name])) and code_like(v)})  # a code?
+    mergeable = {name: empty for name, empty in items.items() if len(seen[name])}
+    worded = {name: empty for name, empty in mergeable.items()
+              if any(word is not None for word, _, _ in coded.get(name, ()))}
+    beyond = sorted({v for name, empty in items.items() for v in empty if name not in worded  # a word's code is real
+                     and len(seen[name]) and (v < min(seen[name]) or v > max(seen[name])) and code_like(v)})  # a code?
     codes = [f"{v:g}" for v in beyond]
     first = (f"if {' and '.join(codes)} {'is' if len(codes) == 1 else 'are'} not a real answer (a typing "
              f"error or a code for no answer), give {Option.MISSING_CODES.given(','.join(codes))}; if real, "
              if codes else "")
-    recode = " and ".join(f"'{printable(name)}' ({_merged_into(empty, seen[name])})" for name, empty in items.items()
-                          if len(seen[name]))
     one_item, one_group = len(items) == 1, len(found) == 1
     if one_group and one_item:
         (where, by_item), = found.items()
@@ -549,22 +559,48 @@ def _empty_categories_error(source: str, found: dict[str, dict[str, list[float]]
                 if not one_item else
                 f"{source}: no one answered some categories of ordinal item '{printable(next(iter(items)))}' that other "
                 f"groups used ({listed})")
+    ways = []
+    if worded:
+        statements = "; ".join(_merging_statement(coded[name], empty, seen[name], name) for name, empty in worded.items())
+        ways.append(f"the answers of {_quoted(worded)} are words, so the model file can give an empty category's words "
+                    f"the code of the nearest category answered, in every group, with a statement of "
+                    f"{'the item' if len(worded) == 1 else 'each item'}'s own (the report then says which words share "
+                    f"a code): {statements}")
+    recoded = {name: empty for name, empty in mergeable.items() if name not in worded}
+    if recoded:
+        recode = " and ".join(f"'{printable(name)}' ({_merged_into(empty, seen[name])})" for name, empty in recoded.items())
+        ways.append(f"{first}in a copy of the data file, recode {recode} in every group")
+    elif first:
+        ways.append(first.removesuffix("; if real, "))
     return DataError(f"{said}; thresholds cannot be compared across groups with an empty category. The tool does not "
-                     f"merge categories: {first}in a copy of the data file, recode {recode} in every group; or drop "
+                     f"merge categories on its own: {'; '.join(ways)}; or drop "
                      f"{'the item' if one_item else 'those items'} from the model, or leave "
                      f"{'this group' if one_group else 'those groups'} out with a row filter ({Option.KEEP})")
 
 
-def _merged_into(empty, seen) -> str:
-    """'1 as 2, 5 as 4': each empty category recoded as its nearest category that was answered (the one towards the
-    middle of the scale when two are as near)."""
+def _quoted(names) -> str:
+    shown = [f"'{printable(name)}'" for name in names]
+    return shown[0] if len(shown) == 1 else ", ".join(shown[:-1]) + f" and {shown[-1]}"
+
+
+def _merging_statement(answers, empty, seen, name: str) -> str:
+    """The 'answers' statement of item ``name`` alone that codes its words as ``answers`` (word, number, code) do,
+    but the words of each ``empty`` category as its nearest category ``seen`` (:func:`_nearest`)."""
+    empty = set(float(v) for v in empty)
+    merged = [(word, number, _nearest(code, seen) if float(code) in empty else code) for word, number, code in answers]
+    return answers_statement(merged, (name,))
+
+
+def _nearest(value: float, seen) -> float:
+    """The category answered nearest ``value`` (the one towards the middle of the scale when two are as near)."""
     seen = np.asarray(seen, dtype=float)
     middle = (seen.min() + seen.max()) / 2
-    pairs = []
-    for v in empty:
-        nearest = min(seen, key=lambda s: (abs(s - v), abs(s - middle)))
-        pairs.append(f"{v:g} as {nearest:g}")
-    return ", ".join(pairs)
+    return float(min(seen, key=lambda s: (abs(s - value), abs(s - middle))))
+
+
+def _merged_into(empty, seen) -> str:
+    """'1 as 2, 5 as 4': each empty category recoded as its nearest category that was answered (:func:`_nearest`)."""
+    return ", ".join(f"{v:g} as {_nearest(v, seen):g}" for v in empty)
 
 
 def _categories(values) -> str:

@@ -63,9 +63,11 @@ def model_name(name: str) -> str:
 def answers_statement(coding, items: tuple[str, ...] | None = None) -> str:
     """An 'answers' statement (language.spec.AnswerCoding) written in the model language, for ``items`` (None: for
     every item), so that a draft model reads the answers recorded as words as the exploration did."""
-    listed = ", ".join((f'"{a.word}"' if a.word is not None else f"{a.number:.15g}") + f" = {a.code:.15g}"
-                       for a in coding.answers)
-    return f"answers {listed}" + (f" for {', '.join(model_name(x) for x in items)}" if items else "")
+    from cfa_tool.data.answer_words import answers_statement as written
+
+    for name in items or ():
+        model_name(name)  # a name the model language cannot write is refused
+    return written([(a.word, a.number, a.code) for a in coding.answers], items)
 
 
 def factor_names(count: int, items: tuple[str, ...]) -> tuple[str, ...]:

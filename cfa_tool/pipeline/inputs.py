@@ -5,6 +5,7 @@ from __future__ import annotations
 import os
 from contextlib import contextmanager
 from dataclasses import replace
+from types import SimpleNamespace
 from functools import lru_cache
 from pathlib import Path
 
@@ -21,6 +22,7 @@ from cfa_tool.data.non_answers import beyond_scale, non_answer_caution
 from cfa_tool.data.descriptives import few_category_note
 from cfa_tool.data.odd_values import odd_values
 from cfa_tool.data.filters import apply_filters, parse_filter
+from cfa_tool.data.halves import RandomHalf, half_kept
 from cfa_tool.data.readers import (HiddenRows, LoadedData, blank_text_as_missing, drop_blank_rows,
                                    first_data_option, read_data, with_no_answers_read)
 from cfa_tool.data.renamed_columns import column_renames, rename_note, renamed_frame
@@ -167,11 +169,12 @@ def read_inputs(model: str | Path | Spec, data: pd.DataFrame | str | Path, sheet
     return spec, loaded.frame, loaded.source
 
 
-def keep_option(keep) -> list[str]:
-    """Row filters: one filter as text, or a list of them."""
+def keep_option(keep) -> list:
+    """Row selections: one filter as text (or one half of a halves file, data.halves.RandomHalf), or a list of
+    them."""
     if keep is None:
         return []
-    if isinstance(keep, str):
+    if isinstance(keep, (str, RandomHalf)):
         return [keep]
     if not isinstance(keep, (list, tuple)):
         raise OptionError(f"keep must be a row filter (text) or a list of them, not {type(keep).__name__}")
@@ -208,7 +211,10 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
     columns read under new names (the option --rename, data.renamed_columns), before anything looks at the names."""
     keep = keep_option(keep)
     spec = load_spec(model)
-    filters = [parse_filter(k) for k in keep]
+    halves = [k for k in keep if isinstance(k, RandomHalf)]
+    if len(halves) > 1:
+        raise OptionError(f"one half of a halves file at a time, not {len(halves)} ({', '.join(f'{h.name} of {h.path}' for h in halves)})")
+    filters = [parse_filter(k) for k in keep if not isinstance(k, RandomHalf)]
     loaded = load_data_for(spec, data, sheet, missing_codes, text_columns, items, filters, names_row, names_option,
                            first_data_row, rename, rename_option)
     frame = loaded.frame
@@ -221,6 +227,9 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         frame = frame.set_axis(columns, axis=1)
     notes: list[str] = list(loaded.notes)
     loaded, filter_notes = rows_kept(replace(loaded, frame=frame) if frame is not loaded.frame else loaded, filters)
+    if halves:  # the halves were drawn from the rows the filters kept
+        loaded = half_of(loaded, halves[0], data)
+        notes.append(loaded.row_filters[-1].note())
     frame, cautions, filters = loaded.frame, loaded.cautions, loaded.row_filters
     notes += [f"{loaded.source}: {note}" for note in filter_notes] if name_the_file else filter_notes
     check_columns(spec, columns, loaded.source, loaded.column_hint())
@@ -247,6 +256,15 @@ def rows_kept(loaded: LoadedData, filters) -> tuple[LoadedData, list[str]]:
     frame, notes, filters = apply_filters(loaded.frame, list(filters), loaded.source, loaded.value_labels)
     return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame), read_frame=loaded.frame,
                    row_filters=tuple(filters)), notes
+
+
+def half_of(loaded: LoadedData, choice: RandomHalf, data) -> LoadedData:
+    """``loaded`` with only the rows of one half of a halves file (data.halves.half_kept, checked against the data
+    file ``data``), the half joining the row filters that the reports name."""
+    frame, half = half_kept(loaded.frame, choice, data, loaded.source)
+    return replace(loaded, frame=frame, cautions=kept_cautions(loaded.cautions, frame),
+                   read_frame=loaded.read_frame if loaded.read_frame is not None else loaded.frame,
+                   row_filters=tuple(loaded.row_filters) + (half,))
 
 
 def kept_cautions(cautions: tuple, frame: pd.DataFrame) -> tuple:
@@ -1522,6 +1540,60 @@ def make_options(options: dict, own: tuple[str, ...] = (), helpers: bool = False
     return FitOptions(**options)
 
 
+def _group_parts(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
+                 reference_group: str | None) -> list[tuple[str | None, np.ndarray]]:
+    """Each group's (label, model items' values), as data.groups splits the rows (one part without groups)."""
+    from cfa_tool.data.groups import group_labels
+    from cfa_tool.data.moments import numeric_columns
+
+    names = spec.observed_names
+    if group is None:
+        return [(None, numeric_columns(frame, names, source))]
+    _check_group_column(spec, group)
+    keys = frame[group].map(lambda v: None if pd.isna(v) else label_text(v))
+    return [(label, numeric_columns(frame.loc[(keys == label).to_numpy()], names, source))
+            for label in group_labels(frame, group, source, reference_group)]
+
+
+def _sparse_answers(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
+                    reference_group: str | None) -> tuple:
+    """The cautions of a check whose rows with gaps leave full-information ML's saturated model without an estimate
+    (assessment.missingness.sparse_answers_problem), in each group: a pair of items no row answers together, or the
+    EM iterations finding no maximum; () when the saturated model can be estimated (or its failure has another
+    cause, which the moments then report as a fit would)."""
+    from cfa_tool.assessment.missingness import never_together, sparse_answers_problem
+    from cfa_tool.data.moments import moments_with_gaps
+
+    found = []
+    for label, values in _group_parts(spec, frame, source, group, reference_group):
+        values = values[~np.isnan(values).all(axis=1)]
+        if not np.isnan(values).any() or len(values) <= len(spec.observed_names):
+            continue  # complete rows, or too few rows: not the saturated model's gaps (the moments say so)
+        if never_together(values, spec.observed_names):
+            found.append(sparse_answers_problem(values, spec.observed_names, group=label))
+            continue
+        try:
+            moments_with_gaps(values, spec.observed_names, source)
+        except EstimationError:  # the EM iterations found no maximum (the answers given together are too few)
+            found.append(sparse_answers_problem(values, spec.observed_names, "its EM iterations found no maximum of "
+                                                "the likelihood", label))
+        except DataError:  # another cause (a constant item, an exact combination): the moments name it, as for a fit
+            continue
+    return tuple(found)
+
+
+def _rows_answering(spec: Spec, frame: pd.DataFrame, source: str, group: str | None,
+                    reference_group: str | None) -> tuple[list[tuple[str | None, SimpleNamespace]], list[str]]:
+    """Each group's rows that answer some model item, for a check whose saturated model cannot be estimated
+    (:func:`_sparse_answers`): (label, an object with ``n_obs``) as :func:`moments_for` gives moments, and its
+    notes on rows without a group label."""
+    parts = _group_parts(spec, frame, source, group, reference_group)
+    counted = [(label, SimpleNamespace(n_obs=int((~np.isnan(values).all(axis=1)).sum()))) for label, values in parts]
+    if group is None:
+        return counted, []
+    return counted, _no_group_notes(int(frame[group].isna().sum()), group) + label_notes(frame, group)
+
+
 def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str | None = None, *,
           sheet: str | None = None, names_row: int | None = None, first_data_row: int | None = None,
           missing_codes: tuple[float, ...] = (), keep: tuple[str, ...] | list[str] = (), rename=None, reference_group: str | None = None, weights: str | None = None, cluster: str | None = None,
@@ -1571,7 +1643,13 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
             ordinal_moments(frame, spec.observed_names, source,
                             frozenset(x for x in spec.observed_names if x not in ordinal_items), pairwise=True)
     options, _ = choose_missing_handling(FitOptions(), frame, spec.observed_names, group)
-    groups, group_notes = moments_for(spec, frame, source, group, reference_group, missing=options.missing, design=design)
+    sparse = _sparse_answers(spec, frame, source, group, reference_group) \
+        if options.missing is MissingData.FULL_INFORMATION and design is None else ()
+    if sparse:  # the rows are reported, with the caution that a fit of them stops (no saturated model to estimate)
+        groups, group_notes = _rows_answering(spec, frame, source, group, reference_group)
+    else:
+        groups, group_notes = moments_for(spec, frame, source, group, reference_group, missing=options.missing,
+                                          design=design)
     notes += group_notes
     labels = tuple(label for label, _ in groups) if group is not None else None
     table = build_parameter_table(spec, labels, mean_structure=options.missing is MissingData.FULL_INFORMATION)
@@ -1602,7 +1680,8 @@ def check(model: str | Path | Spec, data: pd.DataFrame | str | Path, group: str 
                        coverage, labels, bool(ordinal_items), sample_design,
                        sample_design.caution(table.n_free) if sample_design is not None else None,
                        tuple(notes) + ((sample_design.lone_caution(),) if sample_design and sample_design.lone_strata else ()),
-                       data_problems(loaded, spec, group, design, coverage=coverage, n_obs=len(answered)) + small
+                       sparse + data_problems(loaded, spec, group, design, coverage=coverage, n_obs=len(answered))
+                       + small
                        + (design_problems(sample_design, table.n_free) if sample_design is not None else ()),
                        len(frame) - len(answered), odd_complete,
                        len(loaded.read_frame) if loaded.read_frame is not None else None, counted=counted,

@@ -1,11 +1,12 @@
 """``--halves-file`` of explore --split and replicate --data: which rows went to which random half, saved as a
-CSV (row, half) that never replaces a file.  Check values: the halves against the JSON's own row lists and the
+CSV (row, half, seed, data file and its SHA-256) that never replaces a file.  Check values: the halves against the JSON's own row lists and the
 fits' N (explore), the same seed drawing the same halves in both commands (explore then confirm in the other half),
 and the rows of a half refitted from the saved file giving the calibration fit's chi-square (replicate), on the
 Holzinger & Swineford (1939) data (301 rows, tests/datasets)."""
 
 from __future__ import annotations
 
+import hashlib
 import json
 
 import pandas as pd
@@ -34,7 +35,9 @@ def test_both_commands_save_the_same_halves_and_the_rows_refit_as_reported(tmp_p
     assert code == 0, err
     assert f"The rows of each half written to {explored}" in out
     halves = pd.read_csv(explored)
-    assert list(halves.columns) == ["row", "half"]
+    assert list(halves.columns) == ["row", "half", "seed", "data_file", "data_sha256"]
+    assert set(halves["seed"]) == {5} and set(halves["data_file"]) == {HS_FILE.name}
+    assert set(halves["data_sha256"]) == {hashlib.sha256(HS_FILE.read_bytes()).hexdigest()}  # hashlib: Python's own
     assert halves["row"].tolist() == list(range(2, 303))  # every row once, in the order of the file (by its line)
     split = json.loads(js.read_text())["split"]
     assert halves.loc[halves["half"] == "exploration", "row"].tolist() == split["exploration_rows"]

@@ -1,0 +1,81 @@
+"""``check``, the data screen run first, reports rows whose gaps leave full-information ML's saturated model without
+an estimate (a pair of items no row answers together; answers so sparse that EM finds no maximum) with a caution
+naming the items, instead of stopping (exit 2 or 3) as a fit of them does.  Check values are planted by construction:
+in the first data set x1 and x2 are never answered by one row; in the second each of 15 rows answers exactly one pair
+of 6 items, so every pair is answered together by one row and no row answers all 6."""
+
+from __future__ import annotations
+
+import itertools
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
+from cfa_tool.cli import main
+from cfa_tool.errors import DataError, EstimationError
+
+
+def _never_together() -> pd.DataFrame:
+    rng = np.random.default_rng(5)
+    factor = rng.normal(size=200)
+    data = pd.DataFrame({f"x{j}": 0.8 * factor + rng.normal(scale=0.6, size=200) for j in range(1, 5)})
+    data.loc[:99, "x1"] = np.nan  # rows 0-99 lack x1, rows 100-199 lack x2
+    data.loc[100:, "x2"] = np.nan
+    return data
+
+
+def _one_pair_per_row() -> pd.DataFrame:
+    rng = np.random.default_rng(7)
+    rows = []
+    for a, b in itertools.combinations(range(6), 2):
+        row = [np.nan] * 6
+        row[a], row[b] = rng.normal(), rng.normal()
+        rows.append(row)
+    return pd.DataFrame(rows, columns=[f"x{j}" for j in range(1, 7)])
+
+
+def test_a_pair_never_answered_together_is_a_caution_of_check_and_stops_the_fit():
+    data = _never_together()
+    with pytest.raises(DataError, match="no row answers both 'x1' and 'x2'"):
+        cfa_tool.fit("factor f: x1..x4\n", data)
+    found = cfa_tool.check("factor f: x1..x4\n", data)
+    sparse = [p for p in found.problems if p.kind is ProblemKind.SPARSE_ANSWERS]
+    assert len(sparse) == 1 and sparse[0].value == 1
+    assert sparse[0].explanation.startswith("No row answers both 'x1' and 'x2', so their covariance has no data")
+    assert "missing='listwise'" in sparse[0].advice and "would keep 0 complete rows" in sparse[0].advice
+    assert (found.rows, found.complete, found.with_gaps) == (200, 0, 200)
+
+
+def test_answers_too_sparse_for_em_are_a_caution_with_the_least_answered_pair(tmp_path, capsys):
+    data = _one_pair_per_row()
+    with pytest.raises(EstimationError, match="saturated model"):
+        cfa_tool.fit("factor f: x1..x6\n", data)
+    found = cfa_tool.check("factor f: x1..x6\n", data)
+    sparse, = [p for p in found.problems if p.kind is ProblemKind.SPARSE_ANSWERS]
+    assert sparse.value == 1  # each pair answered together by one row, by construction
+    assert ("the fewest rows answering a pair of items are 1 ('x1' and 'x2'), and 0 of the 15 rows answer all 6 "
+            "items") in sparse.explanation
+    path, model = tmp_path / "pairs.csv", tmp_path / "m.cfa"
+    data.to_csv(path, index=False)
+    model.write_text("factor f: x1..x6\n")
+    code = main(["check", str(model), "--data", str(path)])
+    out = capsys.readouterr()
+    assert code == 0, out.err
+    flat = " ".join(out.out.split()).replace("│ ", "").replace(" │", "")
+    assert "answer too few items together for the saturated model of full-information ML" in flat
+    assert "(--incomplete-rows listwise) would keep 0 complete rows" in flat
+
+
+def test_a_group_whose_pair_is_never_answered_together_is_named():
+    rng = np.random.default_rng(11)
+    whole = _never_together().assign(site="north")
+    other = pd.DataFrame({f"x{j}": rng.normal(size=120) for j in range(1, 5)}).assign(site="south")
+    found = cfa_tool.check("factor f: x1..x4\n", pd.concat([whole, other], ignore_index=True), group="site")
+    sparse = [p for p in found.problems if p.kind is ProblemKind.SPARSE_ANSWERS]
+    assert [p.group for p in sparse] == ["north"]
+    assert sparse[0].explanation.startswith("No row answers both 'x1' and 'x2'")  # the views name the group first
+    assert "or leave the group out with a row filter (keep=...)" in sparse[0].advice
+    assert found.group_rows == (200, 120)
