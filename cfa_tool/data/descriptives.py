@@ -88,7 +88,7 @@ def rare_answer_limit(answered: int) -> float:
 
 def nearly_constant_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[NearlyConstant, ...]:
     """The items (columns of ``values``, gaps NaN) whose answers differ from their most common answer in at
-    least one row but fewer than :func:`rare_answer_limit` rows."""
+    least one row but fewer than :func:`rare_answer_limit` rows, and in fewer rows than that answer's."""
     found = []
     answered = np.isfinite(values).sum(axis=0)
     limits = np.maximum(NEARLY_CONSTANT_ROWS, NEARLY_CONSTANT_SHARE * answered)
@@ -110,7 +110,9 @@ def nearly_constant_items(values: np.ndarray, names: tuple[str, ...]) -> tuple[N
             continue
         levels, counts = np.unique(column, return_counts=True)
         others = len(column) - int(counts.max())
-        if 0 < others < rare_answer_limit(len(column)):
+        # the common answer must also outnumber the others together: among 5 rows answered 5 ways, none is
+        # "the answer of all rows but 4" (a tiny sample's limit of 5 rows reaches every row)
+        if 0 < others < rare_answer_limit(len(column)) and others < int(counts.max()):
             found.append(NearlyConstant(name, float(levels[counts.argmax()]), others, len(column)))
     return tuple(found)
 

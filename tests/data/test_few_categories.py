@@ -131,6 +131,10 @@ def test_a_nearly_constant_item_is_named_first_and_its_rare_category_in_the_ordi
     assert [(c.name, c.common, c.others, c.answered) for c in found] == [("a", 1.0, 4, 600)]
     values[:7, 0] = 2.0  # 7 rows of 600 differ: not fewer than 6
     assert nearly_constant_items(values, ("a", "b", "c")) == ()
+    # a tiny sample (the limit of 5 rows reaches every row): 5 rows answered 5 ways hold no common answer (it read
+    # "'x1' is -0.49 in all but 4 of the 5 rows answering it"); 4 alike and 1 other is nearly constant
+    tiny = np.array([[-0.49, 1.0], [0.3, 1.0], [1.2, 1.0], [2.0, 1.0], [0.7, 2.0]])
+    assert [(c.name, c.common, c.others) for c in nearly_constant_items(tiny, ("x1", "x2"))] == [("x2", 1.0, 1)]
 
     result = cfa_tool.fit(rider_model, data)
     first = result.problems[0]
@@ -183,7 +187,7 @@ def test_the_screen_of_nearly_constant_items_finds_what_counting_every_column_fi
             if len(column):
                 levels, counts = np.unique(column, return_counts=True)
                 others = len(column) - int(counts.max())
-                if 0 < others < rare_answer_limit(len(column)):
+                if 0 < others < rare_answer_limit(len(column)) and others < int(counts.max()):
                     found.append(NearlyConstant(name, float(levels[counts.argmax()]), others, len(column)))
         return tuple(found)
 
