@@ -353,6 +353,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         notes = list(read_notes) + list(notes)
         ladder = OrdinalLadder(ordinal_estimator,
                                design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
+        from cfa_tool.pipeline.ordinal import threshold_counts
+
+        # the items' numbers of thresholds decide which of their residual variances are free (model.parameters)
+        ordinal_items = threshold_counts(groups[0][1])
     else:
         # rows with gaps are kept (full-information ML), as 'fit' keeps them, unless listwise is asked for
         fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
@@ -413,6 +417,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 culprits = tuple(ladder.constraint_tests(est, kinds, result.robust is not None)) if kinds else ()
             culprits = _one_per_constraint(tuple(c for c in culprits if _may_free(c, exceptions, level_spec, kinds)),
                                            labels)
+            if partial != "none" and not holds:  # only a freeing the model can take is proposed
+                culprits = _buildable_first(culprits, spec, classes, exceptions, labels, ordinal_items)
             if holds:
                 stopped = STOP_HOLDS
             elif untested:
@@ -432,7 +438,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             if stopped:
                 break
             top = culprits[0]
-            exceptions.append(ParameterRef(_ref_kind(top.kind), _ref_names(top), spec.factors[0].name.location))
+            exceptions.append(_search_ref(top))
             freed_here.append(FreedParameter(level, top.kind, _ref_names(top), top.group, top.index))
             start = None
         freed.extend(freed_here)
@@ -896,6 +902,31 @@ def _exempts_a_class_of(ref: ParameterRef, classes: tuple[str, ...]) -> bool:
         return ref.kind in kinds
     return bool(kinds & ({"residual_variance", "factor_variance"} if ref.kind == "variance"
                          else {"residual_covariance", "factor_covariance"}))
+
+
+def _search_ref(candidate: ModificationIndex) -> ParameterRef:
+    """The exemption the partial search makes of a score test: no line of the model file (the search chose it), so
+    no error about it can point at the researcher's file."""
+    return ParameterRef(_ref_kind(candidate.kind), _ref_names(candidate), None)
+
+
+def _buildable_first(culprits: tuple[ModificationIndex, ...], spec: Spec, classes: tuple[str, ...],
+                     exceptions: list[ParameterRef], labels: tuple[str, ...], ordinal) -> tuple[ModificationIndex, ...]:
+    """``culprits`` from the first whose freeing the model can take: a score test of an entry that stays fixed once
+    its equality is released (an ordinal item's residual variance while its intercept differs across groups and it has
+    one threshold: Wu & Estabrook 2016, as model.parameters builds them) is dropped, as the freeing would change
+    nothing.  Only the head is checked (the search frees one parameter at a time)."""
+    from cfa_tool.model.parameters import build_parameter_table
+
+    counts = ordinal if isinstance(ordinal, dict) else None
+    for i, candidate in enumerate(culprits):
+        try:
+            build_parameter_table(spec_of_level(spec, classes, [*exceptions, _search_ref(candidate)]), labels,
+                                  ordinal=counts)
+        except ModelError:
+            continue
+        return culprits[i:]
+    return ()
 
 
 def _ref_names(candidate: ModificationIndex) -> tuple[str, ...]:
