@@ -483,9 +483,10 @@ DISTURBANCE_INTERCEPTS_NOTE = ("Each is the intercept of the factor's regression
 
 
 #: the column of a multi-group fit's estimates that says which parameters are one estimate shared by the groups
-EQUAL_COLUMN = "Equal across groups"
-EQUAL_NOTE = ("Equal across groups: 'yes', the parameter is held equal across the groups (one estimate, the same in "
-              "every group that shares it); 'no', this group's own estimate (free to differ across groups).")
+EQUAL_COLUMN = "Held equal"
+EQUAL_NOTE = ("Held equal: 'yes', the parameter is held equal across the groups (one estimate, the same in every group "
+              "that shares it); 'no', this group's own estimate (free to differ across groups); a fixed value has no "
+              "mark.")
 
 
 def _shared_sentence(rows: list, residual: dict, shared: frozenset, other: str) -> str:
@@ -503,6 +504,18 @@ def _shared_sentence(rows: list, residual: dict, shared: frozenset, other: str) 
         said.append(f"Held equal across groups (one estimate shared): {'; '.join(parts[True])}.")
     if parts[False]:
         said.append(f"This group's own (free to differ across groups): {'; '.join(parts[False])}.")
+    return " ".join(said)
+
+
+def _shared_thresholds(rows: list, shared: frozenset) -> str:
+    """Which items' thresholds are held equal across groups and which are this group's own, in words (an item's
+    thresholds are held equal or freed together: 'noninvariant threshold(ITEM)')."""
+    said = []
+    for equal, words in ((True, "Thresholds held equal across groups (one estimate each, shared)"),
+                         (False, "This group's own thresholds (free to differ across groups)")):
+        items = list(dict.fromkeys(r.variables[0] for r in rows if r.free and (_key(r) in shared) is equal))
+        if items:
+            said.append(f"{words}: {word_list(items)}.")
     return " ".join(said)
 
 
@@ -530,7 +543,10 @@ def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: 
     cols += [("Estimate", "r"), ("SE", "r"), ("95% CI", "r"), ("p", "r"), ("Std.", "r")]
     marks = [row_problem(result, kind, r.variables, r.group) for r in rows]
     shared = _shared(result) if any(r.free for r in rows) else frozenset()
-    if shared:
+    if shared and kind == "threshold":  # an item's thresholds are held equal or freed together: said in words
+        note = " ".join(filter(None, [note, _shared_thresholds(rows, shared)]))
+        shared = frozenset()
+    elif shared:
         cols.append((EQUAL_COLUMN, "l"))
         note = " ".join(filter(None, [note, EQUAL_NOTE]))
     if any(marks):
@@ -960,7 +976,7 @@ def _sums_across_groups(result, rows) -> str:
         own = [e for e in result.estimates if e.free and _key(e) not in shared
                and ((e.kind in ("intercept", "threshold") and e.variables[0] in items)
                     or (e.kind == "loading" and e.variables[0] == r.factor and e.variables[1] in items))]
-        words = sorted({parameter_words("thresholds" if e.kind == "threshold" else e.kind,
+        words = sorted({parameter_words(e.kind,
                                         e.variables[:1] if e.kind in ("intercept", "threshold") else e.variables)
                         for e in own})
         if words:

@@ -58,10 +58,10 @@ def test_the_parameters_held_equal_are_those_the_model_declares(partial):
 def test_the_estimate_tables_mark_what_is_held_equal(partial):
     report = fit_report(partial)
     intercepts = next(t for t in report.tables if t.title == "Intercepts, group Pasteur")
-    column = intercepts.columns.index("Equal across groups")
+    column = intercepts.columns.index("Held equal")
     marks = {row[0]: row[column] for row in intercepts.rows}
     assert marks["x3"] == "no" and marks["x1"] == "yes"
-    assert "Equal across groups" in intercepts.value_columns  # the data files and the JSON report carry it too
+    assert "Held equal" in intercepts.value_columns  # the data files and the JSON report carry it too
     visual = next(t for t in report.tables if t.title.startswith("Factor visual") and t.title.endswith("Pasteur"))
     assert "Held equal across groups (one estimate shared): the loadings of x2 and x3" in visual.note
     assert "This group's own (free to differ across groups): the error variances of x1, x2, and x3" in visual.note
