@@ -505,8 +505,8 @@ class FitResult(Presentable):
         if self.multigroup:
             out["group_column"] = self.group_column
             # the free parameters held equal across groups (one estimate shared); every other free one is the group's own
-            out["held_equal_across_groups"] = [{"kind": k, "variables": list(v), "group": g}
-                                               for k, v, g in sorted(self.held_equal_across_groups(), key=str)]
+            out["parameters_held_equal_across_groups"] = [{"kind": k, "variables": list(v), "group": g}
+                                                          for k, v, g in sorted(self.held_equal_across_groups(), key=str)]
             out["groups"] = [
                 {
                     "name": g.label,

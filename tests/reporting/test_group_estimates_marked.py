@@ -51,8 +51,8 @@ def test_the_parameters_held_equal_are_those_the_model_declares(partial):
         assert ("residual_variance", ("x1",), group) not in held  # free in each group at the scalar level
     assert cfa_tool.fit(THREE_FACTORS, holzinger_swineford(), group="school").held_equal_across_groups() == frozenset()
     data = json.loads(to_json(partial))
-    assert {"kind": "intercept", "variables": ["x3"], "group": "Pasteur"} not in data["held_equal_across_groups"]
-    assert {"kind": "intercept", "variables": ["x1"], "group": "Pasteur"} in data["held_equal_across_groups"]
+    assert {"kind": "intercept", "variables": ["x3"], "group": "Pasteur"} not in data["parameters_held_equal_across_groups"]
+    assert {"kind": "intercept", "variables": ["x1"], "group": "Pasteur"} in data["parameters_held_equal_across_groups"]
 
 
 def test_the_estimate_tables_mark_what_is_held_equal(partial):
