@@ -436,7 +436,7 @@ def _misfit_sources(step, result) -> str:
     a parameter's difference is between them, not in one; a step the search did not run at points to the two
     ways of freeing an equality (the search, a 'noninvariant' statement)."""
     from cfa_tool.numerics import distributions as dist
-    from cfa_tool.workflows.invariance import _search_ref
+    from cfa_tool.workflows.invariance import search_exemption
 
     two = len(result.groups) == 2
     level = short(result.alpha)
@@ -459,7 +459,7 @@ def _misfit_sources(step, result) -> str:
     if not step.stopped and significant:  # no search was asked for: how to test partial invariance
         text += (f" To test partial invariance, free the equalities named: let the search choose them "
                  f"({Option.PARTIAL.given('auto')}) or declare each in the model file "
-                 f"('noninvariant {_search_ref(significant[0])}'); a freed equality chosen from these data needs "
+                 f"('noninvariant {search_exemption(significant[0])}'); a freed equality chosen from these data needs "
                  f"confirmation in new data.")
     return text
 

@@ -453,7 +453,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             if stopped:
                 break
             top = culprits[0]
-            exceptions.append(_search_ref(top))
+            exceptions.append(search_exemption(top))
             freed_here.append(FreedParameter(level, top.kind, _ref_names(top), top.group, top.index))
             start = None
         freed.extend(freed_here)
@@ -919,7 +919,7 @@ def _exempts_a_class_of(ref: ParameterRef, classes: tuple[str, ...]) -> bool:
                          else {"residual_covariance", "factor_covariance"}))
 
 
-def _search_ref(candidate: ModificationIndex) -> ParameterRef:
+def search_exemption(candidate: ModificationIndex) -> ParameterRef:
     """The exemption the partial search makes of a score test: no line of the model file (the search chose it), so
     no error about it can point at the researcher's file."""
     return ParameterRef(_ref_kind(candidate.kind), _ref_names(candidate), None)
@@ -936,7 +936,7 @@ def _buildable_first(culprits: tuple[ModificationIndex, ...], spec: Spec, classe
     counts = ordinal if isinstance(ordinal, dict) else None
     for i, candidate in enumerate(culprits):
         try:
-            build_parameter_table(spec_of_level(spec, classes, [*exceptions, _search_ref(candidate)]), labels,
+            build_parameter_table(spec_of_level(spec, classes, [*exceptions, search_exemption(candidate)]), labels,
                                   ordinal=counts)
         except ModelError:
             continue
