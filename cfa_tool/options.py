@@ -178,6 +178,7 @@ class Option(enum.Enum):
     GROUP_SIZES = ("--group-sizes", "group_sizes")
     HIGHEST_LEVEL = ("--highest-level", "highest_level")
     DECIDE_BY = ("--decide-by", "decide_by")
+    PARTIAL = ("--partial", "partial")
     MAX_ITERATIONS = ("--max-iterations", "max_iterations")
     SCORE_METHODS = ("--method", "methods", None, True)
     MISSING_HELPERS = ("--missing-helpers", "missing_helpers", None, True)

@@ -1273,8 +1273,12 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
 
 
 def _described(result: FitResult, spec: Spec, groups: tuple[str, ...] | None, ordinal_items=()) -> FitResult:
-    """The result with the description of exactly the model fitted (for the methods paragraph)."""
-    items = tuple(sorted(ordinal_items)) if groups is not None else None
+    """The result with the description of exactly the model fitted (for the methods paragraph).  ``ordinal_items``:
+    the ordinal items' names, or a mapping of each to its number of thresholds (pipeline.ordinal.threshold_counts),
+    which decides whether a later group's residual variance is free (model.parameters); names alone count as one
+    threshold each."""
+    counts = ordinal_items if isinstance(ordinal_items, dict) else dict.fromkeys(ordinal_items, 1)
+    items = tuple(sorted(counts.items())) if groups is not None else None
     return replace(result, description=_description(spec, groups, items), data=_with_coding(result.data, spec))
 
 
@@ -1285,13 +1289,13 @@ def _with_coding(data, spec: Spec):
 
 
 @lru_cache(maxsize=16)
-def _description(spec: Spec, groups: tuple[str, ...] | None, ordinal_items: tuple[str, ...] | None):
-    """The description depends only on the model and the groups (all immutable), so refits of one
-    model (loops, resampling) build it once."""
+def _description(spec: Spec, groups: tuple[str, ...] | None, ordinal_items: tuple[tuple[str, int], ...] | None):
+    """The description depends only on the model, the groups and the ordinal items' numbers of thresholds (all
+    immutable), so refits of one model (loops, resampling) build it once."""
     from cfa_tool.model.description import describe
     from cfa_tool.model.parameters import build_parameter_table
 
-    ordinal = {x: 1 for x in ordinal_items} if ordinal_items is not None else None  # thresholds do not change it
+    ordinal = dict(ordinal_items) if ordinal_items is not None else None
     # the description reads the factors' scales, which the mean structure does not change; with it, a model that
     # names intercepts or factor means (fitted with a mean structure, else the fit refused it) is described too
     return describe(spec, build_parameter_table(spec, groups, mean_structure=True, ordinal=ordinal))

@@ -387,6 +387,31 @@ class FitResult(Presentable):
         labels = list(self.parameter_labels)
         return pd.DataFrame(self.parameter_covariance, index=labels, columns=labels)
 
+    def held_equal_across_groups(self) -> frozenset[tuple]:
+        """(kind, variables, group) of each free estimate of a multi-group fit that is one parameter shared with
+        another group (an 'invariance' level or an 'equal across groups' statement): a shared parameter is labelled
+        once, in the first group that has it (model.parameters), so a later group's row has no label of its own,
+        and its estimate is the very value of the same row in that group.  Empty with one group."""
+        from cfa_tool.language.names import reference_text
+
+        if not self.multigroup:
+            return frozenset()
+        own = set(self.parameter_labels)
+        by_parameter: dict[tuple, list] = {}
+        for r in self.estimates:
+            if r.free:
+                by_parameter.setdefault((r.kind, r.variables), []).append(r)
+        shared = set()
+        for rows in by_parameter.values():
+            for r in rows:
+                if reference_text(r.kind, r.variables, r.group) in own:
+                    continue
+                same = [o for o in rows if o is not r and o.estimate == r.estimate
+                        and reference_text(o.kind, o.variables, o.group) in own]
+                if same:
+                    shared.update({(r.kind, r.variables, r.group), *((o.kind, o.variables, o.group) for o in same)})
+        return frozenset(shared)
+
     def conf_int(self, level: float = 0.95):
         """Wald intervals of the free parameters' estimates at ``level`` (estimate +/- z SE), one row per
         estimate row, as a DataFrame with kind, variables, group, estimate, lower and upper."""
@@ -479,6 +504,9 @@ class FitResult(Presentable):
             out["missing_helpers"] = list(self.method.helpers)
         if self.multigroup:
             out["group_column"] = self.group_column
+            # the free parameters held equal across groups (one estimate shared); every other free one is the group's own
+            out["parameters_held_equal_across_groups"] = [{"kind": k, "variables": list(v), "group": g}
+                                                          for k, v, g in sorted(self.held_equal_across_groups(), key=str)]
             out["groups"] = [
                 {
                     "name": g.label,

@@ -68,7 +68,7 @@ def means_table(result, k: int) -> ReportTable:
     from cfa_tool.method import ReferenceMean
 
     factor = result.factors[k]
-    shares = dict(result.group_shares())
+    shares = dict(result.group_shares(factor.factor))
     rows = [[g.group, str(g.rows), num(g.mean), num(g.mean_se), num(g.variance), num(g.variance_se),
              _percent(shares[g.group])] for g in factor.groups]
     ranked = sorted(factor.groups, key=lambda g: -g.mean)
@@ -76,7 +76,9 @@ def means_table(result, k: int) -> ReportTable:
             f"{ranked[-1].group}. The reference group's "
             + ("mean and variance are fixed (no standard error)." if result.reference_mean is ReferenceMean.ZERO
                else "variance is fixed at 1 (no standard error).")
-            + " Non-invariant: the group's share of flagged loadings and intercepts over every item.")
+            + f" Non-invariant: the group's share of flagged loadings and intercepts of {factor.factor}'s items"
+            + (f" (with two groups a flagged parameter differs between them, so it counts in both)."
+               if len(result.groups) == 2 else "."))
     values = (["group", "rows", "mean", "mean_se", "variance", "variance_se", "noninvariant_share"],
               [[g.group, g.rows, g.mean, g.mean_se, g.variance, g.variance_se, shares[g.group]] for g in factor.groups])
     return _table(f"aligned_means_{k}", f"Aligned factor means and variances of {factor.factor}",
@@ -94,20 +96,34 @@ def item_table(result, k: int) -> ReportTable:
     for n, item in enumerate(factor.items):
         loading, intercept = by_item[(item, "loading")], by_item[(item, "intercept")]
         share = shares[(factor.factor, item)]
-        rows.append([item, _percent(share), num(loading.value), num(intercept.value),
-                     _groups(loading.noninvariant_groups), _groups(intercept.noninvariant_groups)])
-        if share > CAUTION_SHARE:
+        high = share > CAUTION_SHARE
+        rows.append([item, _percent(share) + (f" {HIGH_MARK}" if high else ""), num(loading.value),
+                     num(intercept.value), _groups(result, loading.noninvariant_groups),
+                     _groups(result, intercept.noninvariant_groups)])
+        if high:
             flagged.append(n)
+    two = len(result.groups) == 2
     return _table(f"noninvariance_{k}", f"Non-invariant loadings and intercepts of {factor.factor}, by item",
-                  [("Item", "l"), ("Share", "r"), ("Loading", "r"), ("Intercept", "r"), ("Loading differs in", "l"),
-                   ("Intercept differs in", "l")], rows,
-                  "Share: the item's share of non-invariant values over groups and both parameters; rows above "
-                  f"{_percent(CAUTION_SHARE)} are marked. Loading and Intercept: the average aligned value in the groups "
-                  "where the parameter is invariant. Differs in: the groups flagged, by pairwise Wald tests and tests "
-                  "against the invariant groups' average (after Asparouhov & Muthén 2014).", flagged=tuple(flagged))
+                  [("Item", "l"), ("Share", "r"), ("Loading", "r"), ("Intercept", "r"),
+                   ("Loading differs" if two else "Loading differs in", "l"),
+                   ("Intercept differs" if two else "Intercept differs in", "l")], rows,
+                  "Share: the item's share of non-invariant values over groups and both parameters"
+                  + (" (with two groups a flagged parameter differs between them, so it counts in both)" if two else "")
+                  + f"; a share above {_percent(CAUTION_SHARE)} is marked {HIGH_MARK}. Loading and Intercept: the "
+                  "average aligned value in the groups where the parameter is invariant. "
+                  + ("Differs: whether the two groups' values differ" if two else "Differs in: the groups flagged")
+                  + ", by pairwise Wald tests and tests against the invariant groups' average (after Asparouhov & "
+                  "Muthén 2014).", flagged=tuple(flagged))
 
 
-def _groups(names: tuple[str, ...]) -> str:
+#: the mark of an item whose share of non-invariant values is above the method's authors' rule of thumb (25%)
+HIGH_MARK = "(high)"
+
+
+def _groups(result, names: tuple[str, ...]) -> str:
+    """The groups a parameter was flagged in; with two groups, that the two differ (neither is the one that does)."""
+    if len(result.groups) == 2:
+        return f"between {result.groups[0]} and {result.groups[1]}" if names else "no"
     return ", ".join(names) if names else "none"
 
 
@@ -181,7 +197,9 @@ def group_table(result) -> ReportTable:
     rows = [[g, _percent(s)] for g, s in result.group_shares()]
     return _table("noninvariance_by_group", "Share of non-invariant loadings and intercepts, by group",
                   [("Group", "l"), ("Non-invariant", "r")], rows,
-                  "Over every item of every factor.", flagged=tuple(n for n, (_, s) in enumerate(result.group_shares())
+                  "Over every item of every factor." + (" With two groups a flagged parameter differs between them, "
+                                                       "so it counts in both." if len(result.groups) == 2 else ""),
+                  flagged=tuple(n for n, (_, s) in enumerate(result.group_shares())
                                                                     if s > CAUTION_SHARE))
 
 

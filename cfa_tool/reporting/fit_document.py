@@ -4,6 +4,7 @@ result carries so that ``cfa-tool report`` can write any format later."""
 
 from __future__ import annotations
 
+import re
 from dataclasses import replace
 from functools import partial
 
@@ -27,21 +28,41 @@ def fit_tables(result) -> list[ReportTable]:
         out += in_section("Fit", [fit, T.group_table(result) if result.multigroup else None])
     for g, group in enumerate(result.groups):
         heading = "Estimates" + (f", group {group.label} (N = {group.data.n_obs})" if result.multigroup else "")
-        out += in_section(heading, [*T.estimate_tables(result, g), T.reliability_table(result, g),
-                             T.sum_score_table(result, g), T.distinct_table(result, g), T.case_table(result, g)])
+        out += in_section(heading, of_group(result, g, [*T.estimate_tables(result, g), T.reliability_table(result, g),
+                             T.sum_score_table(result, g), T.distinct_table(result, g), T.case_table(result, g)]))
     for g, group in enumerate(result.groups):
         heading = "Local fit" + (f", group {group.label}" if result.multigroup else "")
-        out += in_section(heading, [T.residual_table(result, g)])
+        out += in_section(heading, of_group(result, g, [T.residual_table(result, g)]))
     if result.multigroup:  # each group's under its own heading, as its local fit
         for g, group in enumerate(result.groups):
-            out += in_section(f"Modification indices, group {group.label}", [T.modification_table(result, g)])
+            out += in_section(f"Modification indices, group {group.label}",
+                              of_group(result, g, [T.modification_table(result, g)]))
     else:
         out += in_section("Modification indices", [T.modification_table(result)])
     data = [T.item_table(result)]
     for g in range(len(result.groups)):
-        data += [T.category_table(result, g), T.correlation_table(result, g)]
+        data += of_group(result, g, [T.category_table(result, g), T.correlation_table(result, g)])
     out += in_section("Data", data + T.label_tables(result))
     return out
+
+
+def of_group(result, g: int, tables) -> list[ReportTable]:
+    """Group ``g``'s tables of a multi-group fit with the group in each title (a Word or HTML table is read, cited
+    and numbered on its own, away from its section's heading); one group's tables as they are."""
+    tables = [t for t in tables if t is not None]
+    if not result.multigroup:
+        return tables
+    label = result.groups[g].label
+    named = re.compile(rf"\bgroup {re.escape(str(label))}(?=$|[ ,;:)?])")
+
+    def titled(title: str) -> str:
+        if named.search(title):  # the title names its group already
+            return title
+        if title.endswith("?"):  # a question asks about the group: 'Are the factors distinct in group A?'
+            return f"{title[:-1]} in group {label}?"
+        return f"{title}, group {label}"
+
+    return [replace(t, title=titled(t.title)) for t in tables]
 
 
 def _path_diagram(result, k: int) -> tuple[str, str]:

@@ -312,9 +312,11 @@ def _factor_block(result, group: int, k: int, factor: str, rows: list, residual:
     observed = set(result.observed)
     higher = any(r.variables[1] not in observed for r in rows)
     mark_any = any(problems)
+    shared = _shared(result)
     columns = [("Factor" if higher else "Item", "l"), ("Std.", "r"), ("Loading", "r"), ("SE", "r"), ("95% CI", "r"),
                ("p", "r")] + ([] if higher else [("R²", "r")]) + [
         ("Disturbance" if higher else "Error variance", "r")] + ([("Problem", "l")] if mark_any else [])
+    other = "disturbance" if higher else "error variance"
     body, numbers = [], []
     for r, mark in zip(rows, problems):
         target = r.variables[1]
@@ -325,24 +327,30 @@ def _factor_block(result, group: int, k: int, factor: str, rows: list, residual:
         if not higher:
             cells.append("" if r2 is None else (unit(r2, 2) if 0 <= r2 <= 1 else num(r2, 2)))
         cells.append(num(rest.estimate) if rest is not None else "")
+        equal = [name for name, row in (("loading", r), (other, rest)) if row is not None and _key(row) in shared]
         if mark_any:
             cells.append(mark)
         body.append(cells)
         numbers.append([target, r.standardized, r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
                         r.ci95[1], "yes" if r.free else "no", r2 if not higher else None,
                         rest.estimate if rest is not None else None, rest.se if rest is not None and rest.free else None,
-                        rest.p_value if rest is not None else None] + ([mark] if mark_any else []))
+                        rest.p_value if rest is not None else None] + (
+            ["yes" if "loading" in equal else "no", "yes" if other in equal else "no"] if shared else []) + (
+            [mark] if mark_any else []))
     value_columns = [columns[0][0], "Standardized loading", "Loading", "SE", "z", "p", "95% CI lower", "95% CI upper",
                      "Free", "R²", "Error variance" if not higher else "Disturbance variance", "Its SE", "Its p"] + (
+        ["Loading equal across groups", f"{other.capitalize()} equal across groups"] if shared else []) + (
         ["Problem"] if mark_any else [])
     scale = _scale_phrase(result, factor)
     title = f"Factor {factor}" + (f" ({scale})" if scale else "")
     suffix = "" if label is None else f"_{group}"
-    shared = sorted({r.variables[1] for r in rows} & {
+    both = sorted({r.variables[1] for r in rows} & {
         e.variables[1] for e in result.estimates if e.kind == "loading" and e.variables[0] != factor
         and (e.group is None or e.group == label)}, key=result.observed.index) if not higher else []
-    note = (f"R² and the error variance of {word_list(shared)} are each item's whole: the share of its variance all "
-            f"its factors explain together, not {factor}'s alone." if shared else None)
+    note = (f"R² and the error variance of {word_list(both)} are each item's whole: the share of its variance all "
+            f"its factors explain together, not {factor}'s alone." if both else None)
+    if shared:  # in words under the table: a column would not fit beside the others
+        note = " ".join(filter(None, [_shared_sentence(rows, residual, shared, other), note]))
     return _table(f"factor_{k + 1}{suffix}", title, columns, body, note,
                   flagged=tuple(i for i, m in enumerate(problems) if m), values=(value_columns, numbers))
 
@@ -474,6 +482,58 @@ DISTURBANCE_INTERCEPTS_NOTE = ("Each is the intercept of the factor's regression
                                "standard deviation.")
 
 
+#: the column of a multi-group fit's estimates that says which parameters are one estimate shared by the groups
+EQUAL_COLUMN = "Held equal"
+EQUAL_NOTE = ("Held equal: 'yes', the parameter is held equal across the groups (one estimate, the same in every group "
+              "that shares it); 'no', this group's own estimate (free to differ across groups); a fixed value has no "
+              "mark.")
+
+
+def _shared_sentence(rows: list, residual: dict, shared: frozenset, other: str) -> str:
+    """A factor block's loadings and error variances (or disturbances) held equal across groups and those that are
+    this group's own, in words (fixed ones are left out)."""
+    parts = {True: [], False: []}
+    for name, found in (("loadings", [(r.variables[1], r) for r in rows]),
+                        (f"{other}s", [(r.variables[1], residual.get(r.variables[1])) for r in rows])):
+        for equal in (True, False):
+            which = [x for x, row in found if row is not None and row.free and (_key(row) in shared) is equal]
+            if which:
+                parts[equal].append(f"the {name if len(which) > 1 else name[:-1]} of {word_list(which)}")
+    said = []
+    if parts[True]:
+        said.append(f"Held equal across groups (one estimate shared): {'; '.join(parts[True])}.")
+    if parts[False]:
+        said.append(f"This group's own (free to differ across groups): {'; '.join(parts[False])}.")
+    return " ".join(said)
+
+
+def _shared_thresholds(rows: list, shared: frozenset) -> str:
+    """Which items' thresholds are held equal across groups and which are this group's own, in words (an item's
+    thresholds are held equal or freed together: 'noninvariant threshold(ITEM)')."""
+    said = []
+    for equal, words in ((True, "Thresholds held equal across groups (one estimate each, shared)"),
+                         (False, "This group's own thresholds (free to differ across groups)")):
+        items = list(dict.fromkeys(r.variables[0] for r in rows if r.free and (_key(r) in shared) is equal))
+        if items:
+            said.append(f"{words}: {word_list(items)}.")
+    return " ".join(said)
+
+
+def _shared(result) -> frozenset:
+    """The (kind, variables, group) of the free parameters held equal across groups (FitResult), or nothing when the
+    fit has no equality across groups (one group, a configural model): the column is then left out."""
+    held = getattr(result, "held_equal_across_groups", None)
+    return held() if held is not None else frozenset()
+
+
+def _key(row) -> tuple:
+    return (row.kind, row.variables, row.group)
+
+
+def _equal_word(row, shared: frozenset) -> str:
+    return "" if not row.free else "yes" if _key(row) in shared else "no"
+
+
 def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: str | None) -> ReportTable:
     """One table of parameter rows of one kind (residual covariances, intercepts, factor means, thresholds)."""
     cols = [("Variable", "l")]
@@ -482,6 +542,13 @@ def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: 
     between = _threshold_answers(result, rows[0].group) if kind == "threshold" else {}
     cols += [("Estimate", "r"), ("SE", "r"), ("95% CI", "r"), ("p", "r"), ("Std.", "r")]
     marks = [row_problem(result, kind, r.variables, r.group) for r in rows]
+    shared = _shared(result) if any(r.free for r in rows) else frozenset()
+    if shared and kind == "threshold":  # an item's thresholds are held equal or freed together: said in words
+        note = " ".join(filter(None, [note, _shared_thresholds(rows, shared)]))
+        shared = frozenset()
+    elif shared:
+        cols.append((EQUAL_COLUMN, "l"))
+        note = " ".join(filter(None, [note, EQUAL_NOTE]))
     if any(marks):
         cols.append(("Problem", "l"))
     body, numbers = [], []
@@ -490,7 +557,7 @@ def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: 
         numbers.append(list(r.variables) + ([between.get(r.variables)] if kind == "threshold" else [])
                        + [r.estimate, r.se if r.free else None, r.z, r.p_value, r.ci95[0],
                           r.ci95[1], r.standardized, "yes" if r.free else "no"]
-                       + ([mark] if any(marks) else []))
+                       + ([_equal_word(r, shared)] if shared else []) + ([mark] if any(marks) else []))
         names = list(r.variables)
         if kind == "threshold":
             shown = names[0] if names[0] != previous else ""
@@ -498,13 +565,15 @@ def _estimates_table(result, kind: str, key: str, title: str, rows: list, note: 
             names = [shown, between.get(r.variables, f"step {names[1]}")]
         cells = names + [num(r.estimate), num(r.se) if r.free else "fixed", _interval(*r.ci95), p_value(r.p_value),
                          num(r.standardized, 2)]
+        if shared:
+            cells.append(_equal_word(r, shared))
         if any(marks):
             cells.append(mark)
         body.append(cells)
     value_columns = (["Variable", "Step", "Between answers"] if kind == "threshold"
                      else [c for c, _ in cols[:len(rows[0].variables)]]) + [
         "Estimate", "SE", "z", "p", "95% CI lower", "95% CI upper", "Standardized", "Free"] + (
-        ["Problem"] if any(marks) else [])
+        [EQUAL_COLUMN] if shared else []) + (["Problem"] if any(marks) else [])
     return _table(key, title, cols, body, note, flagged=tuple(i for i, m in enumerate(marks) if m),
                   values=(value_columns, numbers))
 
@@ -609,7 +678,7 @@ def missing_table(result) -> ReportTable | None:
 
     rows = [[named(p["not_answered"]), str(p["rows"])] for p in summary["patterns"][:8]]
     low = sorted(summary["coverage"].items(), key=lambda kv: kv[1])[:5]
-    note = f"{summary['n_patterns']} patterns. Lowest coverage: " + ", ".join(f"{name} {100 * share:.1f}%" for name, share in low)
+    note = f"{summary['n_patterns']} distinct patterns over all rows. Lowest coverage: " + ", ".join(f"{name} {100 * share:.1f}%" for name, share in low)
     weights = summary.get("counted_by_weights")
     if weights:
         note += f". Rows are counted by their frequency weights ('{weights}'), as N is"
@@ -634,8 +703,12 @@ def _completely_at_random_note(result) -> str:
                      for label, d2, df, p in test.groups if df > 0)
     verdict = ("" if test.p_value >= 0.05 else " The rows with different gaps differ in their answers: the answers "
                "are not missing completely at random.")
-    return (f" {TEST_NAME} (from the saturated model's EM estimates, over {test.patterns} patterns"
-            f"{', the groups added up' if test.groups else ''}): chi-square {test.chi_square:.2f} on {test.df} df, "
+    pooled = (result.missing_data or {}).get("n_patterns")
+    within = (f"{test.patterns} patterns counted group by group, the groups added up; a pattern found in several "
+              f"groups counts in each, hence more than the {pooled} distinct patterns above"
+              if test.groups and pooled is not None and pooled != test.patterns
+              else f"{test.patterns} patterns{', the groups added up' if test.groups else ''}")
+    return (f" {TEST_NAME} (from the saturated model's EM estimates, over {within}): chi-square {test.chi_square:.2f} on {test.df} df, "
             f"p {p_phrase(test.p_value)}{f' ({each})' if each else ''}.{verdict} {READING}")
 
 
@@ -886,6 +959,39 @@ def keying_sentence(rows) -> str:
     return f"Computed for keyed sums; reversed for scoring ({why}): {'; '.join(lists)}. "
 
 
+def _sums_across_groups(result, rows) -> str:
+    """Whether the groups' sum-score means can be compared: only when the items' loadings and intercepts (for
+    ordinal items, thresholds) are equal across groups, scalar invariance (Meredith 1993; Steinmetz 2013 shows how
+    unequal intercepts bias observed-mean comparisons; both recalled from memory).  Names the items whose parameters this fit leaves free to
+    differ, or says that the fit holds none equal."""
+    shared = _shared(result)
+    if not shared:
+        return ("The groups' sum means can be compared only if the items' loadings and intercepts are equal across "
+                "groups (scalar invariance), which this model does not assume: test it first (the invariance "
+                "command), and until it holds do not read differences between these means as differences in the "
+                "factors.")
+    differ = {}
+    for r in rows:
+        items = set(r.items)
+        own = [e for e in result.estimates if e.free and _key(e) not in shared
+               and ((e.kind in ("intercept", "threshold") and e.variables[0] in items)
+                    or (e.kind == "loading" and e.variables[0] == r.factor and e.variables[1] in items))]
+        words = sorted({parameter_words(e.kind,
+                                        e.variables[:1] if e.kind in ("intercept", "threshold") else e.variables)
+                        for e in own})
+        if words:
+            differ[r.factor] = words
+    if not differ:
+        return ("These sums' means are compared across groups on the assumption, held by this model, that the items' "
+                "loadings and intercepts are equal across groups (scalar invariance); the fit of that assumption is "
+                "what the invariance command tests.")
+    named = "; ".join(f"{factor}: {word_list(words)}" for factor, words in differ.items())
+    return (f"The means of the {word_list(list(differ))} sums are not comparable across groups: this model lets "
+            f"{named} differ between the groups, and a sum's mean moves with its items' loadings and intercepts as "
+            f"well as with its factor (a sum needs scalar invariance of all its items); compare the factor means "
+            f"instead.")
+
+
 def sum_score_table(result, group: int = 0) -> ReportTable | None:
     rows = [r for r in result.groups[group].reliability if r.sum_score_sd is not None]
     if not rows:
@@ -897,6 +1003,8 @@ def sum_score_table(result, group: int = 0) -> ReportTable | None:
     if any(r.sum_score_mean is None for r in rows):
         note += (" A mean is shown once the answer scale of the reversed items is known: declare it with "
                  "'reversed ITEMS on LOWEST to HIGHEST'.")
+    if result.multigroup:
+        note = f"{_sums_across_groups(result, rows)} {note}"
     values = [[r.factor, len(r.items), ", ".join(r.reversed), r.sum_score_mean, r.sum_score_sd,
                min(r.item_total) if r.item_total else None] for r in rows]
     columns = [("Factor", "l"), ("Items", "r"), ("Reversed for scoring", "l"), ("Mean", "r"), ("SD", "r"),

@@ -430,6 +430,40 @@ def _step_label(step, inherited: bool = False) -> str:
     return f"{step.level} (partial)" if step.declared or inherited else step.level
 
 
+def _misfit_sources(step, result) -> str:
+    """The score tests of a step that did not hold: only those significant at the steps' level are named as likely
+    sources (a score test is a chi-square(1) statistic; Sörbom 1989), or the note says none is; with two groups
+    a parameter's difference is between them, not in one; a step the search did not run at points to the two
+    ways of freeing an equality (the search, a 'noninvariant' statement)."""
+    from cfa_tool.numerics import distributions as dist
+    from cfa_tool.workflows.invariance import search_exemption
+
+    two = len(result.groups) == 2
+    level = short(result.alpha)
+
+    def words(c) -> str:
+        return parameter_words(c.kind, c.variables, None if two else c.group)
+
+    significant = [c for c in step.culprits if dist.chi2_sf(c.index, 1) < result.alpha]
+    between = f", each a difference between {result.groups[0]} and {result.groups[1]}" if two else ""
+    if significant:
+        which = "those" if len(significant) <= 5 else f"the 5 largest of the {len(significant)}"
+        text = (f"Likeliest sources of misfit at the {step.level} step ({result.score_tests.phrase}; {which} "
+                f"significant at {level}{between}): " + "; ".join(f"{words(c)} ({c.index:.2f})"
+                                                                 for c in significant[:5]) + ".")
+    else:
+        top = step.culprits[0]
+        text = (f"No score test of the {step.level} step's equalities is significant at {level} ({result.score_tests.phrase}; "
+                f"the largest: {words(top)}, {top.index:.2f}), so these data point to no single equality as the "
+                f"source of its misfit.")
+    if not step.stopped and significant:  # no search was asked for: how to test partial invariance
+        text += (f" To test partial invariance, free the equalities named: let the search choose them "
+                 f"({Option.PARTIAL.given('auto')}) or declare each in the model file "
+                 f"('noninvariant {search_exemption(significant[0])}'); a freed equality chosen from these data needs "
+                 f"confirmation in new data.")
+    return text
+
+
 def _declared_note(steps) -> str:
     """Which parameters the model file's 'noninvariant' statements leave free across groups, from which step on."""
     first: dict = {}
@@ -541,9 +575,7 @@ def invariance_report(result) -> Report:
                 if step.partial else ""
             notes.append(f"The search at the {step.level} step {freed_words}stopped: {step.stopped}.")
         if not step.holds and step.culprits:
-            notes.append(f"Likeliest sources of misfit at the {step.level} step ({result.score_tests.phrase}): " + "; ".join(
-                f"{parameter_words(c.kind, c.variables, c.group)} ({c.index:.2f})"
-                for c in step.culprits[:5]))
+            notes.append(_misfit_sources(step, result))
     if result.latent_differences:
         rows = [[d.factor, d.group, num(d.mean), num(d.se), f"[{num(d.ci95[0], 2)}, {num(d.ci95[1], 2)}]",
                  p_value(d.p_value), num(d.standardized, 2), num(d.variance_ratio, 2)] for d in result.latent_differences]

@@ -433,6 +433,16 @@ class AlignedParameter:
                       "invariant": self.invariant})
 
 
+def counted_flags(parameters) -> list[tuple[AlignedParameter, bool]]:
+    """Each parameter with whether it counts as non-invariant: as flagged, except that with two groups a loading or
+    intercept flagged in one differs between the two, so it counts in both (which of two groups 'differs' is no
+    finding: a new-user trial read 'group B 7% non-invariant' beside 'group A 0%')."""
+    if len({p.group for p in parameters}) != 2:
+        return [(p, not p.invariant) for p in parameters]
+    differ = {(p.item, p.kind) for p in parameters if not p.invariant}
+    return [(p, (p.item, p.kind) in differ) for p in parameters]
+
+
 @dataclass(frozen=True)
 class ParameterInvariance:
     """One item's loading or intercept across groups: the groups where it agrees and their average value."""
@@ -463,7 +473,7 @@ class FactorAlignment:
 
     @property
     def noninvariant_share(self) -> float:
-        return float(np.mean([not p.invariant for p in self.parameters]))
+        return float(np.mean([flag for _, flag in counted_flags(self.parameters)]))
 
     def to_dict(self) -> dict:
         return clean({"factor": self.factor, "items": list(self.items), "loss": self.loss, "converged": self.converged,
@@ -529,22 +539,26 @@ class AlignmentResult(Presentable):
 
     @property
     def noninvariant_share(self) -> float:
-        """Of every loading and intercept in every group."""
-        return float(np.mean([not p.invariant for f in self.factors for p in f.parameters]))
+        """Of every loading and intercept in every group (with two groups, as :func:`counted_flags` counts them)."""
+        return float(np.mean([flag for f in self.factors for _, flag in self._flagged(f)]))
+
+    def _flagged(self, f: FactorAlignment) -> list[tuple[AlignedParameter, bool]]:
+        return counted_flags(f.parameters)
 
     def item_shares(self) -> list[tuple[str, str, float]]:
         """(factor, item, share of the item's loadings and intercepts over groups that are non-invariant)."""
         out = []
         for f in self.factors:
+            flagged = self._flagged(f)
             for item in f.items:
-                flags = [not p.invariant for p in f.parameters if p.item == item]
-                out.append((f.factor, item, float(np.mean(flags))))
+                out.append((f.factor, item, float(np.mean([flag for p, flag in flagged if p.item == item]))))
         return out
 
-    def group_shares(self) -> list[tuple[str, float]]:
-        """(group, share of its loadings and intercepts, over every item, that are non-invariant)."""
-        return [(g, float(np.mean([not p.invariant for f in self.factors for p in f.parameters if p.group == g])))
-                for g in self.groups]
+    def group_shares(self, factor: str | None = None) -> list[tuple[str, float]]:
+        """(group, share of its loadings and intercepts that are non-invariant) over every factor's items, or over
+        ``factor``'s only."""
+        flagged = [pair for f in self.factors if factor is None or f.factor == factor for pair in self._flagged(f)]
+        return [(g, float(np.mean([flag for p, flag in flagged if p.group == g]))) for g in self.groups]
 
     def to_dict(self) -> dict:
         return {

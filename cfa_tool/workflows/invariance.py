@@ -41,7 +41,7 @@ from cfa_tool.data.sample_design import check_design, design_columns, design_sum
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.workflows.nesting import DifferenceTest, scaled_difference
 from cfa_tool.views import Presentable
-from cfa_tool.method import ORDINAL_FIT_CHANGE, Choice, DecisionRule  # (declared with the other choices; imported from here too)
+from cfa_tool.method import ORDINAL_FIT_CHANGE, Choice, DecisionRule, MissingData  # (declared with the other choices; imported from here too)
 
 LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
     # level, classes held equal, parameter kinds the step adds
@@ -94,18 +94,29 @@ SEARCH_WARNING = (
 MANY_FREED_SHARE = 0.5
 
 
+#: the score test of an equality constraint (a modification index), as every report cites it
+SORBOM_1989 = "Sörbom 1989"
+
+
 class ScoreTests(Choice):
     """Which score tests of a step's equalities the partial search reads (and compares with chi-square(1) to decide
     whether to go on), chosen by the tool with the test: ``value`` the JSON's word, ``phrase`` the reports'."""
 
-    #: continuous items fitted with the normal-theory test: the score tests of the likelihood (Sorbom 1989)
-    NORMAL = ("normal theory", "normal-theory", "normal-theory score tests (Sorbom 1989)", False)
-    #: a robust or design-based test, and ordinal items: the score statistic over the robust (sandwich) variance of
-    #: the score (Satorra 1989), chi-square(1) without normality
+    #: continuous items fitted with the normal-theory test: the score tests of the likelihood (Sörbom 1989)
+    NORMAL = ("normal theory", "normal-theory", f"normal-theory score tests ({SORBOM_1989})", False)
+    #: continuous items with a robust or design-based test: the score statistic over the robust (sandwich) variance
+    #: of the score (Satorra 1989), chi-square(1) without normality
     ROBUST = ("robust", "robust", "robust score tests (the generalized score test of Satorra 1989), which do not "
-                                  "assume normal data (with full-information ML and rows with gaps they are built on "
-                                  "the expected information, which assumes answers missing completely at random)",
-              False)
+                                  "assume normal data", False)
+    #: the same with full-information ML and rows with gaps, whose score variance is built on the expected information
+    ROBUST_GAPS = ("robust, rows with gaps", "robust",
+                   "robust score tests (the generalized score test of Satorra 1989), which do not assume normal data; "
+                   "with full-information ML and rows with gaps they are built on the expected information, which "
+                   "assumes answers missing completely at random", False)
+    #: ordinal items: the score statistic of the least-squares fit over its robust variance (Satorra 1989)
+    LEAST_SQUARES = ("robust least squares", "robust",
+                     "robust score tests of the least-squares fit on thresholds and polychoric correlations (the "
+                     "generalized score test of Satorra 1989)", False)
 
 
 @dataclass(frozen=True)
@@ -250,7 +261,11 @@ class InvarianceResult(Presentable):
         """The score tests of the steps' equalities (the search's guide): robust with a robust or design-based test
         and for ordinal items, normal-theory otherwise."""
         first = self.steps[0].result
-        return ScoreTests.ROBUST if first.method.ordinal or first.robust is not None else ScoreTests.NORMAL
+        if first.method.ordinal:
+            return ScoreTests.LEAST_SQUARES
+        if first.robust is None:
+            return ScoreTests.NORMAL
+        return ScoreTests.ROBUST_GAPS if first.method.missing is MissingData.FULL_INFORMATION else ScoreTests.ROBUST
 
     def to_dict(self) -> dict:
         data = self._data_dict()
@@ -353,6 +368,10 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         notes = list(read_notes) + list(notes)
         ladder = OrdinalLadder(ordinal_estimator,
                                design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
+        from cfa_tool.pipeline.ordinal import threshold_counts
+
+        # the items' numbers of thresholds decide which of their residual variances are free (model.parameters)
+        ordinal_items = threshold_counts(groups[0][1])
     else:
         # rows with gaps are kept (full-information ML), as 'fit' keeps them, unless listwise is asked for
         fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
@@ -413,6 +432,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 culprits = tuple(ladder.constraint_tests(est, kinds, result.robust is not None)) if kinds else ()
             culprits = _one_per_constraint(tuple(c for c in culprits if _may_free(c, exceptions, level_spec, kinds)),
                                            labels)
+            if partial != "none" and not holds:  # only a freeing the model can take is proposed
+                culprits = _buildable_first(culprits, spec, classes, exceptions, labels, ordinal_items)
             if holds:
                 stopped = STOP_HOLDS
             elif untested:
@@ -432,7 +453,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
             if stopped:
                 break
             top = culprits[0]
-            exceptions.append(ParameterRef(_ref_kind(top.kind), _ref_names(top), spec.factors[0].name.location))
+            exceptions.append(search_exemption(top))
             freed_here.append(FreedParameter(level, top.kind, _ref_names(top), top.group, top.index))
             start = None
         freed.extend(freed_here)
@@ -805,7 +826,7 @@ def robust_score_tests(found: ModificationIndices, model, theta: np.ndarray, lik
     variance of the score instead of its normal-theory variance.  For a constraint gamma (a group's deviation from
     the common value) with information A and meat B of the model enlarged by gamma (both at the restricted
     estimates), the efficient score is s_gamma - A_gt A_tt^-1 s_theta; its normal-theory variance is
-    h = A_gg - A_gt A_tt^-1 A_tg (the denominator of the normal-theory statistic; Sorbom 1989) and its robust
+    h = A_gg - A_gt A_tt^-1 A_tg (the denominator of the normal-theory statistic; Sörbom 1989) and its robust
     variance L B L', L = (-A_gt A_tt^-1, 1).  So the robust statistic is the normal-theory one times h / (L B L')
     (times 2 for rows with gaps, whose meat is twice the information under normality; Yuan & Bentler 2000).  A and
     B are those of inference.robust (Satorra & Bentler 1994: A = Delta' V Delta, B = Delta' V Gamma V Delta, over
@@ -896,6 +917,31 @@ def _exempts_a_class_of(ref: ParameterRef, classes: tuple[str, ...]) -> bool:
         return ref.kind in kinds
     return bool(kinds & ({"residual_variance", "factor_variance"} if ref.kind == "variance"
                          else {"residual_covariance", "factor_covariance"}))
+
+
+def search_exemption(candidate: ModificationIndex) -> ParameterRef:
+    """The exemption the partial search makes of a score test: no line of the model file (the search chose it), so
+    no error about it can point at the researcher's file."""
+    return ParameterRef(_ref_kind(candidate.kind), _ref_names(candidate), None)
+
+
+def _buildable_first(culprits: tuple[ModificationIndex, ...], spec: Spec, classes: tuple[str, ...],
+                     exceptions: list[ParameterRef], labels: tuple[str, ...], ordinal) -> tuple[ModificationIndex, ...]:
+    """``culprits`` from the first whose freeing the model can take: a score test of an entry that stays fixed once
+    its equality is released (an ordinal item's residual variance while its intercept differs across groups and it has
+    one threshold: Wu & Estabrook 2016, as model.parameters builds them) is dropped, as the freeing would change
+    nothing.  Only the head is checked (the search frees one parameter at a time)."""
+    from cfa_tool.model.parameters import build_parameter_table
+
+    counts = ordinal if isinstance(ordinal, dict) else None
+    for i, candidate in enumerate(culprits):
+        try:
+            build_parameter_table(spec_of_level(spec, classes, [*exceptions, search_exemption(candidate)]), labels,
+                                  ordinal=counts)
+        except ModelError:
+            continue
+        return culprits[i:]
+    return ()
 
 
 def _ref_names(candidate: ModificationIndex) -> tuple[str, ...]:

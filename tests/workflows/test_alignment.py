@@ -402,3 +402,41 @@ def test_a_statement_for_one_group_is_refused_with_the_reason(hs_data):
     model = "factor visual: x1, x2, x3\nin group Pasteur: fix variance(x1) = 0.3\n"
     with pytest.raises(ModelError, match="a statement for one group cannot apply"):
         cfa_tool.align(model, hs_data, "school", trials=0)
+
+
+def test_with_two_groups_a_flagged_parameter_differs_between_them_and_high_shares_are_marked():
+    # a new-user trial (two language versions): a factor none of whose items was flagged showed group B '7%'
+    # non-invariant (the share was over every factor's items), 'differs in: B' named one of two groups, and an item
+    # at 50% was said to be marked with no mark in a view without colour.  The simulated truth here: q2's intercept
+    # is shifted by 1.0 (residual SD .55) in the second group, nothing else differs
+    from cfa_tool.reporting.align_report import HIGH_MARK, item_table, means_table
+
+    data, _, _ = simulate(groups=2, rows=600, seed=41, shifted={(1, 1): 1.0})
+    two = cfa_tool.align(MODEL, data, "country", trials=0)
+    flagged = {(p.item, p.kind) for p in two.factors[0].parameters if not p.invariant}
+    assert flagged == {("q2", "intercept")}
+    assert dict(two.group_shares()) == {"land00": pytest.approx(1 / 12), "land01": pytest.approx(1 / 12)}
+    shares = {i: s for _, i, s in two.item_shares()}
+    assert shares["q2"] == 0.5 and shares["q1"] == 0.0
+    table = item_table(two, 0)
+    rows = {row[0]: row for row in table.rows}
+    assert rows["q2"][1] == f"50% {HIGH_MARK}" and rows["q1"][1] == "0%"
+    assert rows["q2"][5] == "between land00 and land01" and rows["q2"][4] == "no"
+    assert table.flagged == (1,)
+    means = means_table(two, 0)
+    assert [row[-1] for row in means.rows] == ["8%", "8%"]
+
+
+def test_a_factor_s_group_share_counts_its_own_items_only():
+    from cfa_tool.reporting.align_report import means_table
+
+    data, _, _ = simulate(groups=3, rows=500, seed=43, shifted={(2, 0): 1.2})
+    other = data[ITEMS].rename(columns={q: q.replace("q", "z") for q in ITEMS}).sample(frac=1.0, random_state=1)
+    data = data.join(other.reset_index(drop=True).set_index(data.index))
+    result = cfa_tool.align(MODEL + "factor other: " + ", ".join(q.replace("q", "z") for q in ITEMS) + "\n", data,
+                            "country", trials=0)
+    own = {p.group for p in result.factors[1].parameters if not p.invariant}
+    shown = {row[0]: row[-1] for row in means_table(result, 1).rows}
+    for group, share in shown.items():
+        expected = np.mean([not p.invariant for p in result.factors[1].parameters if p.group == group])
+        assert share == f"{100 * expected:.0f}%", (group, own)

@@ -307,4 +307,4 @@ def test_the_search_frees_by_robust_score_tests_and_the_reports_say_which():
     assert normal.to_dict()["score_tests"]["name"] == "normal theory"
     text = " ".join(robust.summary(width=200).split())
     assert "Score tests: robust score tests (the generalized score test of Satorra 1989)" in text
-    assert "Score tests: normal-theory score tests (Sorbom 1989)" in " ".join(normal.summary(width=200).split())
+    assert "Score tests: normal-theory score tests (Sörbom 1989)" in " ".join(normal.summary(width=200).split())
