@@ -614,7 +614,7 @@ def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answe
 
 def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | None = None,
                   design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
-                  coverage: dict | None = None, n_obs: int | None = None) -> tuple:
+                  coverage: dict | None = None, n_obs: int | None = None, where: str = "") -> tuple:
     """The cautions on the data that come first in every view, composed here once for every command (fit, check,
     compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: what the row filters did to
     the sample (pipeline.row_filter_cautions: a selection on a model item, a label several codes carry); rows that are copies of
@@ -624,11 +624,12 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     items; the groups the weights leave out, group labels differing by case and values that look like no answers
     (:func:`odd_value_problems`); items answered by few rows (``coverage``: item -> share of the ``n_obs`` rows
     analysed answering it) and nearly constant items (:func:`few_answers_problems`) among ``names`` (the model's
-    items by default).  The data are not refused: the user may know better."""
+    items by default).  The data are not refused: the user may know better.  ``where``: which of several files
+    filtered alike the row filters' cautions are about (replicate's ' on the calibration data (spring.csv)')."""
     from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
-    found: tuple = row_filter_problems(loaded, spec) + copied_row_problems(loaded, group, design, names, ids or {})
+    found: tuple = row_filter_problems(loaded, spec, where=where) + copied_row_problems(loaded, group, design, names, ids or {})
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
