@@ -1177,10 +1177,9 @@ def helpers_can_apply(fit_options, frame: pd.DataFrame, names: tuple[str, ...], 
                       values: np.ndarray | None = None) -> None:
     """Missing-data helpers need rows with gaps in the model's items (an error otherwise: with every row complete
     the likelihood of items and helpers factors into the items' own and the helpers' given the items, so the
-    helpers change no estimate, standard error or fit index, and an option that cannot apply is refused)."""
-    gap = rows_with_gaps(frame, names, values)
-    if gap.any():  # rows that answer nothing are left out whatever the helpers hold
-        gap &= ~(np.isnan(values).all(axis=1) if values is not None else frame[list(names)].isna().all(axis=1).to_numpy())
+    helpers change no estimate, standard error or fit index, and an option that cannot apply is refused).  A row
+    that answers no item but a helper counts: it enters the helpers' part of the likelihood (:func:`with_helpers`)."""
+    gap = analysed_gaps(fit_options, frame, names, values)
     if group is not None and group in frame.columns:
         gap &= frame[group].notna().to_numpy()
     if not gap.any():
@@ -1190,9 +1189,14 @@ def helpers_can_apply(fit_options, frame: pd.DataFrame, names: tuple[str, ...], 
 
 
 def with_helpers(moments: SampleMoments, frame: pd.DataFrame, helpers: tuple[str, ...], source: str) -> SampleMoments:
-    """``moments`` (a full-information fit's rows) with the helpers' columns beside the items, for the same rows
-    (those answering some item: a row that answers no item is left out as without helpers), and the EM estimates of
-    the means and covariances of items and helpers together (the saturated model of the joint likelihood)."""
+    """``moments`` (a full-information fit's rows) with the helpers' columns beside the items, for the rows that
+    answer some item or some helper, and the EM estimates of the means and covariances of items and helpers together
+    (the saturated model of the joint likelihood).  A row that answers no item but a helper is kept: under Graham's
+    (2003) saturated-correlates model the likelihood is that of items and helpers together, to which such a row adds
+    the density of its helpers' values; through the helpers' covariances with the items it moves the items' means
+    and covariances (and the model's estimates) as rows with some answers do (Enders 2010, ch. 5, recalled from
+    memory).  Left out, the rows that answer nothing when the helpers say why (a low helper, say) would leave the
+    rows kept a selected sample, which the helpers are there to prevent."""
     from cfa_tool.data.moments import moments_with_gaps, numeric_columns
 
     values = numeric_columns(frame, helpers, source)
@@ -1203,12 +1207,36 @@ def with_helpers(moments: SampleMoments, frame: pd.DataFrame, helpers: tuple[str
         row, col = infinite[0]
         raise DataError(f"{source}: the missing-data helper '{printable(helpers[col])}' has an infinite value in "
                         f"{cell_words(frame, helpers[col], row_numbers(frame)[row])}")
-    where = pd.Index(row_numbers(frame)).get_indexer(moments.row_numbers)
-    rows = np.hstack([moments.rows, values[where]])
+    numbers = pd.Index(row_numbers(frame))
+    where = numbers.get_indexer(moments.row_numbers)
+    unanswered = (numbers.get_indexer(moments.unanswered_rows) if moments.unanswered_rows is not None
+                  else np.zeros(0, dtype=int))
+    helped = unanswered[~np.isnan(values[unanswered]).all(axis=1)]  # no item answered, some helper
+    kept = np.sort(np.concatenate([where, helped]))  # the file's order
+    items = np.full((len(kept), moments.rows.shape[1]), np.nan)
+    items[np.searchsorted(kept, where)] = moments.rows
+    rows = np.hstack([items, values[kept]])
     where_said = source if moments.group is None else f"{source} (group {moments.group})"
-    weights = moments.design.weights if moments.design is not None else None
+    weights = moments.design.weights if moments.design is not None else None  # (helpers refuse a design)
     joint = moments_with_gaps(rows, moments.names + helpers, where_said, weights)
-    return replace(moments, names=joint.names, covariance=joint.covariance, means=joint.means, rows=rows)
+    left = unanswered[~np.isin(unanswered, kept)]
+    return replace(moments, names=joint.names, covariance=joint.covariance, means=joint.means, rows=rows,
+                   n_obs=len(kept), rows_dropped=moments.rows_read - len(kept), row_numbers=np.asarray(numbers[kept]),
+                   unanswered_rows=np.asarray(numbers[left]) if moments.unanswered_rows is not None else None)
+
+
+def analysed_gaps(fit_options, frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None
+                  ) -> np.ndarray:
+    """Which rows miss an answer on one of ``names`` and are analysed all the same: rows that answer nothing are left
+    out and said apart (as the check counts them), but with missing-data helpers a row that answers no item and some
+    helper is analysed (:func:`with_helpers`)."""
+    gap = rows_with_gaps(frame, names, values)
+    if gap.any():
+        kept = ~(np.isnan(values).all(axis=1) if values is not None else frame[list(names)].isna().all(axis=1).to_numpy())
+        if getattr(fit_options, "missing_helpers", ()):
+            kept |= frame[list(fit_options.missing_helpers)].notna().any(axis=1).to_numpy()
+        gap &= kept
+    return gap
 
 
 def rows_with_gaps(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None) -> np.ndarray:
@@ -1234,9 +1262,7 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     if fit_options.test is FitTest.YUAN_BENTLER:  # the robust test of full-information ML
         return replace(fit_options, missing=MissingData.FULL_INFORMATION), []
     robust = fit_options.test is FitTest.ROBUST
-    gap = rows_with_gaps(frame, names, values)
-    if gap.any():  # rows that answer nothing are left out and said apart, as the check counts them
-        gap &= ~(np.isnan(values).all(axis=1) if values is not None else frame[list(names)].isna().all(axis=1).to_numpy())
+    gap = analysed_gaps(fit_options, frame, names, values)
     rows = len(frame)
     if group is not None and group in frame.columns:
         labelled = frame[group].notna().to_numpy()

@@ -481,9 +481,14 @@ def _sample_phrase(result) -> str:
         text += f"; {kept}"
     without_group = getattr(data, "without_group", 0)
     dropped = data.rows_dropped - without_group
+    helped = getattr(data, "helpers_only", 0)
+    if helped:  # kept by the saturated-correlates likelihood (pipeline.inputs.with_helpers)
+        text += (f"; {helped} of these rows answered no item but an auxiliary variable and entered the likelihood "
+                 f"through {'it' if len(result.method.helpers) == 1 else 'them'}")
     if dropped:
         if full_information or result.method.missing is MissingData.PAIRWISE:
-            text += (f"; {dropped} of {data.rows_read} rows answered no model variable and "
+            neither = " or auxiliary variable" if result.method.helpers else ""
+            text += (f"; {dropped} of {data.rows_read} rows answered no model variable{neither} and "
                      f"{'was' if dropped == 1 else 'were'} left out")
         else:
             text += f"; {dropped} of {data.rows_read} rows with missing answers were excluded listwise"
