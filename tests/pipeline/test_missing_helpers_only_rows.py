@@ -6,9 +6,10 @@ covariances with the items, move the items' estimated means and covariances.  Wh
 nothing (the missing-at-random case the helpers are for), leaving such rows out leaves a sample selected by the
 helper, and the items' means come out biased.
 
-Reference: the observed-data normal log-likelihood of the four items and the helper written out below with scipy
-(scipy.stats.multivariate_normal on each row's answered columns, maximised by scipy.optimize over the model's
-parameters and the helper's mean, covariances with the items and variance), every row with some answer counted;
+Reference: the observed-data normal log-likelihood of the four items and the helper written out below (each row's
+normal density on the columns it answered, checked against scipy.stats.multivariate_normal; maximised by
+scipy.optimize over the model's parameters and the helper's mean, covariances with the items and variance), every
+row with some answer counted;
 the chi-square is twice the difference from the unrestricted normal model of the five columns, maximised alike.
 The data are simulated (fixed seed): one factor, intercepts 3, 2.5, 2.8, 3.2, factor variance 1; the items are all
 missing, with probability .8, where the helper is below -.3."""
@@ -43,12 +44,22 @@ def frame() -> pd.DataFrame:
     return out
 
 
-def _log_likelihood(mu: np.ndarray, sigma: np.ndarray, rows: np.ndarray) -> float:
-    seen, total = ~np.isnan(rows), 0.0
-    for pattern in np.unique(seen, axis=0):
-        if pattern.any():
-            answered = rows[(seen == pattern).all(axis=1)][:, pattern]
-            total += stats.multivariate_normal(mu[pattern], sigma[np.ix_(pattern, pattern)]).logpdf(answered).sum()
+def _patterns(rows: np.ndarray) -> list[tuple[np.ndarray, np.ndarray]]:
+    """(columns answered, the rows answering exactly those) of each pattern of answers."""
+    seen = ~np.isnan(rows)
+    return [(pattern, rows[(seen == pattern).all(axis=1)][:, pattern]) for pattern in np.unique(seen, axis=0)
+            if pattern.any()]
+
+
+def _log_likelihood(mu: np.ndarray, sigma: np.ndarray, patterns) -> float:
+    """The sum over rows of the normal log-density of the columns each row answered, written out: -(k log 2 pi +
+    log|S| + (x - m)' S^-1 (x - m)) / 2, S and m the answered columns' part of sigma and mu."""
+    total = 0.0
+    for pattern, answered in patterns:
+        lower = np.linalg.cholesky(sigma[np.ix_(pattern, pattern)])
+        z = np.linalg.solve(lower, (answered - mu[pattern]).T)
+        total -= 0.5 * (answered.size * np.log(2 * np.pi) + 2 * len(answered) * np.log(np.diag(lower)).sum()
+                        + (z * z).sum())
     return total
 
 
@@ -70,9 +81,11 @@ def _saturated(t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _maximum(moments, start: np.ndarray, rows: np.ndarray) -> tuple[np.ndarray, float]:
+    patterns = _patterns(rows)
+
     def minus(t):
         mu, sigma = moments(t)
-        return 1e10 if np.linalg.eigvalsh(sigma).min() <= 1e-8 else -_log_likelihood(mu, sigma, rows)
+        return 1e10 if np.linalg.eigvalsh(sigma).min() <= 1e-8 else -_log_likelihood(mu, sigma, patterns)
 
     found = optimize.minimize(minus, start, method="BFGS", options={"gtol": 1e-6, "maxiter": 2000})
     return found.x, -found.fun
@@ -86,6 +99,9 @@ def test_rows_answering_only_the_helper_are_analysed_as_the_joint_likelihood_has
     start = np.r_[np.nanmean(rows[:, :4], axis=0), 0.8, 0.9, 0.7, 1.0, 0.4, 0.4, 0.4, 0.4, 0.0, 0.5, 0.4, 0.45, 0.35,
                   1.0]
     theta, model_ll = _maximum(_model, start, rows)
+    mu, sigma = _model(theta)  # the density written out above is scipy's
+    assert model_ll == pytest.approx(sum(stats.multivariate_normal(mu[seen], sigma[np.ix_(seen, seen)]).logpdf(x).sum()
+                                         for seen, x in _patterns(rows)), rel=1e-12)
     complete = np.linalg.cholesky(np.cov(rows[~np.isnan(rows).any(axis=1)].T))
     _, saturated_ll = _maximum(_saturated, np.r_[np.nanmean(rows, axis=0), complete[np.tril_indices(5)]], rows)
 
