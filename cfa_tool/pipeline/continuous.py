@@ -230,13 +230,17 @@ def _estimate_with_helpers(spec: Spec, groups: list[tuple[str | None, SampleMome
     items_saturated = [em_saturated(pattern_data(gm.rows[a, :p], w if w is None else w[a]))[:2]
                        for gm, w, a in zip(joint, weights, answered)]
     items_only = [(label, replace(m, names=table.observed, covariance=sigma, means=mu, rows=gm.rows[a, :p],
-                                  n_obs=int(a.sum()), row_numbers=None if m.row_numbers is None else m.row_numbers[a]))
-                  for (label, m), gm, (mu, sigma), a in zip(groups, joint, items_saturated, answered)]
+                                  n_obs=int(a.sum()) if w is None else int(round(w[a].sum())),
+                                  row_numbers=None if m.row_numbers is None else m.row_numbers[a],
+                                  design=None if m.design is None else replace(m.design, weights=m.design.weights[a])))
+                  for (label, m), gm, (mu, sigma), a, w in zip(groups, joint, items_saturated, answered, weights)]
     first = estimate(spec, items_only, replace(options, missing_helpers=()), start)
     if not first.converged:
         return first
     # the joint N: the chi-square is N times the joint discrepancy (estimation.auxiliary)
-    summaries = [GroupMoments(gm.covariance[:p, :p], gm.mean[:p], gm.n_obs, design=gm.design) for gm in joint]
+    # (the design of the rows answering some item: each of them has a case diagnostic)
+    summaries = [GroupMoments(gm.covariance[:p, :p], gm.mean[:p], gm.n_obs, design=m.design)
+                 for gm, (_, m) in zip(joint, items_only)]
     items = MissingDataLikelihood(model, first.likelihood.patterns, items_saturated, summaries)
     saturated = [(gm.mean, gm.covariance) for gm in joint]
     joint_model = JointModel(model, r, len(joint))

@@ -1031,7 +1031,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                                           values)
         notes += group_notes
         if fit_options.missing_helpers:
-            groups = [(label, with_helpers(m, frame, fit_options.missing_helpers, source)) for label, m in groups]
+            groups = [(label, with_helpers(m, frame, fit_options.missing_helpers, source, design))
+                      for label, m in groups]
         if ids is not None:  # the rows that answer nothing named by their ids too (a footer: its text)
             by_row = ids_by_row_number(ids, ids)  # row numbers by the one rule (data.moments.row_numbers)
             groups = [(label, replace(m, unanswered_ids=tuple(by_row.get(int(r)) for r in m.unanswered_rows)))
@@ -1188,7 +1189,8 @@ def helpers_can_apply(fit_options, frame: pd.DataFrame, names: tuple[str, ...], 
                           f"errors and fit are those without them; leave them out")
 
 
-def with_helpers(moments: SampleMoments, frame: pd.DataFrame, helpers: tuple[str, ...], source: str) -> SampleMoments:
+def with_helpers(moments: SampleMoments, frame: pd.DataFrame, helpers: tuple[str, ...], source: str,
+                 design: DesignColumns | None = None) -> SampleMoments:
     """``moments`` (a full-information fit's rows) with the helpers' columns beside the items, for the rows that
     answer some item or some helper, and the EM estimates of the means and covariances of items and helpers together
     (the saturated model of the joint likelihood).  A row that answers no item but a helper is kept: under Graham's
@@ -1196,7 +1198,8 @@ def with_helpers(moments: SampleMoments, frame: pd.DataFrame, helpers: tuple[str
     the density of its helpers' values; through the helpers' covariances with the items it moves the items' means
     and covariances (and the model's estimates) as rows with some answers do (Enders 2010, ch. 5, recalled from
     memory).  Left out, the rows that answer nothing when the helpers say why (a low helper, say) would leave the
-    rows kept a selected sample, which the helpers are there to prevent."""
+    rows kept a selected sample, which the helpers are there to prevent.  ``design``: the frequency weights (the one
+    design helpers take), whose weights the rows kept carry."""
     from cfa_tool.data.moments import moments_with_gaps, numeric_columns
 
     values = numeric_columns(frame, helpers, source)
@@ -1217,11 +1220,16 @@ def with_helpers(moments: SampleMoments, frame: pd.DataFrame, helpers: tuple[str
     items[np.searchsorted(kept, where)] = moments.rows
     rows = np.hstack([items, values[kept]])
     where_said = source if moments.group is None else f"{source} (group {moments.group})"
-    weights = moments.design.weights if moments.design is not None else None  # (helpers refuse a design)
+    row_design = moments.design
+    if row_design is not None and design is not None and design.weights is not None:  # frequency weights
+        counts = pd.to_numeric(frame[design.weights]).to_numpy(dtype=float)[kept]
+        row_design = replace(row_design, weights=counts, given=(float(counts.sum()), float(counts @ counts)))
+    weights = row_design.weights if row_design is not None else None
     joint = moments_with_gaps(rows, moments.names + helpers, where_said, weights)
     left = unanswered[~np.isin(unanswered, kept)]
     return replace(moments, names=joint.names, covariance=joint.covariance, means=joint.means, rows=rows,
-                   n_obs=len(kept), rows_dropped=moments.rows_read - len(kept), row_numbers=np.asarray(numbers[kept]),
+                   design=row_design, n_obs=int(round(row_design.total)) if weights is not None else len(kept),
+                   rows_dropped=moments.rows_dropped - len(helped), row_numbers=np.asarray(numbers[kept]),
                    unanswered_rows=np.asarray(numbers[left]) if moments.unanswered_rows is not None else None)
 
 

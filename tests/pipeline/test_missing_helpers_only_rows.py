@@ -143,3 +143,17 @@ def test_helpers_apply_when_only_rows_without_item_answers_have_gaps():
     # the rows kept by the helper bring y1's estimated mean down from that of the rows answering it (pandas)
     first = next(e.estimate for e in with_helper.estimates if e.kind == "intercept" and e.variables[0] == "y1")
     assert first < frame["y1"].mean() - 0.05
+
+
+def test_frequency_weights_count_the_rows_answering_only_the_helper_too(frame):
+    """A row of frequency weight k is k identical rows (the definition of frequency weights), those answering only
+    the helper included: the weighted fit equals that of the rows written out k times."""
+    counted = frame.assign(count=np.random.default_rng(5).integers(1, 4, size=len(frame)))
+    weighted = cfa_tool.fit(MODEL, counted, missing_helpers="a", weights="count", weight_kind="frequency")
+    repeated = counted.loc[counted.index.repeat(counted["count"])].reset_index(drop=True)
+    plain = cfa_tool.fit(MODEL, repeated.drop(columns="count"), missing_helpers="a")
+    assert weighted.n_obs == plain.n_obs
+    assert weighted.data.helpers_only == int((frame[ITEMS].isna().all(axis=1) & frame["a"].notna()).sum())
+    for a, b in zip(weighted.estimates, plain.estimates):
+        assert a.estimate == pytest.approx(b.estimate, abs=1e-6)
+    assert weighted.fit.chi_square == pytest.approx(plain.fit.chi_square, abs=1e-6)
