@@ -18,6 +18,10 @@ independence (baseline) model of the incremental indices keeps the auxiliaries' 
 with everything free and only the items' covariances with each other at zero (Savalei & Bentler 2009), so the
 baseline does not pay for the auxiliaries' correlations and CFI/TLI are not inflated.
 
+Every row with some value among the p + r columns is in the likelihood: a row that answers no item but an auxiliary
+adds the auxiliaries' density, which through C moves the items' estimated moments, and leaving such rows out would
+select the sample by the auxiliaries (pipeline.inputs.with_helpers keeps them).
+
 The parameter vector is theta (the model's, first) followed, group by group, by eta_g = (alpha, C by rows,
 Omega's lower triangle by rows).
 """

@@ -225,13 +225,22 @@ def _estimate_with_helpers(spec: Spec, groups: list[tuple[str | None, SampleMome
     p, r = len(table.observed), len(helpers)
     joint = [ordered_moments(m, table.observed + helpers) for _, m in groups]
     weights = [gm.design.weights if gm.design is not None else None for gm in joint]
-    items_saturated = [em_saturated(pattern_data(gm.rows[:, :p], w))[:2] for gm, w in zip(joint, weights)]
-    items_only = [(label, replace(m, names=table.observed, covariance=sigma, means=mu, rows=gm.rows[:, :p]))
-                  for (label, m), gm, (mu, sigma) in zip(groups, joint, items_saturated)]
+    # the model without helpers fits the rows that answer some item; rows answering only helpers enter the joint fit
+    answered = [~np.isnan(gm.rows[:, :p]).all(axis=1) for gm in joint]
+    items_saturated = [em_saturated(pattern_data(gm.rows[a, :p], w if w is None else w[a]))[:2]
+                       for gm, w, a in zip(joint, weights, answered)]
+    items_only = [(label, replace(m, names=table.observed, covariance=sigma, means=mu, rows=gm.rows[a, :p],
+                                  n_obs=int(a.sum()) if w is None else int(round(w[a].sum())),
+                                  row_numbers=None if m.row_numbers is None else m.row_numbers[a],
+                                  design=None if m.design is None else replace(m.design, weights=m.design.weights[a])))
+                  for (label, m), gm, (mu, sigma), a, w in zip(groups, joint, items_saturated, answered, weights)]
     first = estimate(spec, items_only, replace(options, missing_helpers=()), start)
     if not first.converged:
         return first
-    summaries = [GroupMoments(gm.covariance[:p, :p], gm.mean[:p], gm.n_obs, design=gm.design) for gm in joint]
+    # the joint N: the chi-square is N times the joint discrepancy (estimation.auxiliary)
+    # (the design of the rows answering some item: each of them has a case diagnostic)
+    summaries = [GroupMoments(gm.covariance[:p, :p], gm.mean[:p], gm.n_obs, design=m.design)
+                 for gm, (_, m) in zip(joint, items_only)]
     items = MissingDataLikelihood(model, first.likelihood.patterns, items_saturated, summaries)
     saturated = [(gm.mean, gm.covariance) for gm in joint]
     joint_model = JointModel(model, r, len(joint))
@@ -368,7 +377,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         options = replace(options, test=FitTest.ROBUST.for_rows(rows))
     multi = table.multigroup
     means = table.mean_structure
-    n_total = likelihood.n_total
+    # with helpers the joint likelihood's N, which counts the rows that answer only helpers (its discrepancy's)
+    n_total = likelihood.n_total if est.auxiliary is None else est.auxiliary.likelihood.n_total
     values = model.entry_values(theta)
     standardized = np.empty_like(values)
     factors_standardized = np.empty_like(values)
@@ -380,6 +390,9 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     left_out, warnings = rows_left_out([(label, m.rows_dropped, m.rows_read, m.n_obs, m.unanswered_rows,
                                          m.unanswered_ids, m.row_naming) for label, m in groups],
                                        options.missing)  # cautions first in every view, notes among the warnings
+    helpers_only = [_helpers_only(m, table.observed) if est.auxiliary is not None else 0 for _, m in groups]
+    if sum(helpers_only):
+        warnings.append(helpers_only_note(sum(helpers_only), sum(m.rows_read for _, m in groups)))
     fit = None
     robust = None
     inference = None
@@ -467,7 +480,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
         group_results.append(
             GroupResult(
                 label=label,
-                data=_summary(m, table.observed, gm),
+                data=replace(_summary(m, table.observed, gm), helpers_only=helpers_only[g]),
                 chi_square=share,
                 srmr=group_srmr[g] if est.converged else None,
                 r_squared=dict(zip(table.observed, (float(v) for v in r_squared(mats[g])))),
@@ -478,7 +491,8 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                 implied_mean=mats[g].implied_mean() if means else None,
                 latent_covariance=mats[g].latent_covariance(),
                 normality=mardia(gm.rows, whitened, _frequency_weights(gm)) if whitened is not None else None,
-                **_group_diagnostics(mats[g], table, gm, m, sigma, est.converged and options.diagnostics,
+                **_group_diagnostics(mats[g], table, gm, _answering_items(m, table.observed) if est.auxiliary
+                                     is not None else m, sigma, est.converged and options.diagnostics,
                                      spec.reverse_keyed or None, spec.method_factors | spec.exploratory_factors, whitened,
                                      likelihood.sigma_inverse(theta, g) if hasattr(likelihood, "sigma_inverse") else None,
                                      likelihood.patterns[g].rows if hasattr(likelihood, "patterns") else None),
@@ -511,7 +525,7 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
     else:
         ranges = ()
     overall = DataSummary(first.source, sum(m.rows_read for _, m in groups), sum(m.rows_dropped for _, m in groups),
-                          n_total, table.observed, item_means, item_sds, ranges=ranges)
+                          n_total, table.observed, item_means, item_sds, ranges=ranges, helpers_only=sum(helpers_only))
     missingness = (_completely_at_random(likelihood, table.groups if multi else (None,),
                                          est.auxiliary.items_saturated if est.auxiliary is not None else None)
                    if options.diagnostics and not likelihood.complete_data else None)
@@ -521,6 +535,34 @@ def assess(spec: Spec, groups: list[tuple[str | None, SampleMoments]], est: Esti
                       warnings=warnings, options=options, group_column=group_column, problems=problems,
                       parameter_covariance=cov_theta if est.converged else None, parameter_labels=table.free_labels, model=model,
                       completely_at_random=missingness)
+
+
+def _answered_items(moments: SampleMoments, observed: tuple[str, ...]) -> np.ndarray:
+    """Which of the rows of ``moments`` (a fit with missing-data helpers: items and helpers) answer some item."""
+    items = [moments.names.index(x) for x in observed]
+    return ~np.isnan(moments.rows[:, items]).all(axis=1)
+
+
+def _helpers_only(moments: SampleMoments, observed: tuple[str, ...]) -> int:
+    """The rows of a fit with missing-data helpers that answer no item but a helper (inputs.with_helpers keeps them)."""
+    return 0 if moments.rows is None else int((~_answered_items(moments, observed)).sum())
+
+
+def helpers_only_note(count: int, read: int) -> str:
+    """The note on the rows that answer no item but a missing-data helper: analysed, and why."""
+    return (f"{count} of {read} rows answer none of the model's items but a missing-data helper: they are analysed "
+            f"and counted in N, entering the likelihood of items and helpers through the helpers' values (Graham's "
+            f"2003 saturated-correlates model), which moves the items' estimated means and covariances as the "
+            f"helpers' correlations with the items imply; left out, they would leave a sample selected by the helpers")
+
+
+def _answering_items(moments: SampleMoments, observed: tuple[str, ...]) -> SampleMoments:
+    """A fit with missing-data helpers: ``moments`` with the row numbers of the rows that answer some item only, in
+    the order of the items' own full-information patterns, which the case diagnostics read (a row answering only
+    helpers has no distance on the items)."""
+    if moments.rows is None or moments.row_numbers is None:
+        return moments
+    return replace(moments, row_numbers=moments.row_numbers[_answered_items(moments, observed)])
 
 
 def _completely_at_random(likelihood: MissingDataLikelihood, labels, saturated=None):

@@ -632,7 +632,7 @@ def screened(frame: pd.DataFrame, names: tuple[str, ...], source: str, non_answe
 
 def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | None = None,
                   design: DesignColumns | None = None, ids: dict | None = None, names: tuple[str, ...] | None = None,
-                  coverage: dict | None = None, n_obs: int | None = None) -> tuple:
+                  coverage: dict | None = None, n_obs: int | None = None, where: str = "") -> tuple:
     """The cautions on the data that come first in every view, composed here once for every command (fit, check,
     compare, invariance, replicate, scores, bootstrap, cutoffs, align), in this order: what the row filters did to
     the sample (pipeline.row_filter_cautions: a selection on a model item, a label several codes carry); rows that are copies of
@@ -642,11 +642,12 @@ def data_problems(loaded: LoadedData, spec: Spec | None = None, group: str | Non
     items; the groups the weights leave out, group labels differing by case and values that look like no answers
     (:func:`odd_value_problems`); items answered by few rows (``coverage``: item -> share of the ``n_obs`` rows
     analysed answering it) and nearly constant items (:func:`few_answers_problems`) among ``names`` (the model's
-    items by default).  The data are not refused: the user may know better."""
+    items by default).  The data are not refused: the user may know better.  ``where``: which of several files
+    filtered alike the row filters' cautions are about (replicate's ' on the calibration data (spring.csv)')."""
     from cfa_tool.pipeline.row_filter_cautions import row_filter_problems
 
     names = names if names is not None else (spec.observed_names if spec is not None else ())
-    found: tuple = row_filter_problems(loaded, spec) + copied_row_problems(loaded, group, design, names, ids or {})
+    found: tuple = row_filter_problems(loaded, spec, where=where) + copied_row_problems(loaded, group, design, names, ids or {})
     if spec is not None and spec.reversed:  # rows with one answer throughout contradict reverse-worded items
         frame = _labelled(loaded.frame, group)
         found += scale_ends_problems(frame, spec) + same_answer_problems(frame, spec, ids or {})
@@ -1048,7 +1049,8 @@ def _fit_kept_rows(spec, loaded, notes, group, reference_group, fit_options, ord
                                           values)
         notes += group_notes
         if fit_options.missing_helpers:
-            groups = [(label, with_helpers(m, frame, fit_options.missing_helpers, source)) for label, m in groups]
+            groups = [(label, with_helpers(m, frame, fit_options.missing_helpers, source, design))
+                      for label, m in groups]
         if ids is not None:  # the rows that answer nothing named by their ids too (a footer: its text)
             by_row = ids_by_row_number(ids, ids)  # row numbers by the one rule (data.moments.row_numbers)
             groups = [(label, replace(m, unanswered_ids=tuple(by_row.get(int(r)) for r in m.unanswered_rows)))
@@ -1194,10 +1196,9 @@ def helpers_can_apply(fit_options, frame: pd.DataFrame, names: tuple[str, ...], 
                       values: np.ndarray | None = None) -> None:
     """Missing-data helpers need rows with gaps in the model's items (an error otherwise: with every row complete
     the likelihood of items and helpers factors into the items' own and the helpers' given the items, so the
-    helpers change no estimate, standard error or fit index, and an option that cannot apply is refused)."""
-    gap = rows_with_gaps(frame, names, values)
-    if gap.any():  # rows that answer nothing are left out whatever the helpers hold
-        gap &= ~(np.isnan(values).all(axis=1) if values is not None else frame[list(names)].isna().all(axis=1).to_numpy())
+    helpers change no estimate, standard error or fit index, and an option that cannot apply is refused).  A row
+    that answers no item but a helper counts: it enters the helpers' part of the likelihood (:func:`with_helpers`)."""
+    gap = analysed_gaps(fit_options, frame, names, values)
     if group is not None and group in frame.columns:
         gap &= frame[group].notna().to_numpy()
     if not gap.any():
@@ -1206,10 +1207,17 @@ def helpers_can_apply(fit_options, frame: pd.DataFrame, names: tuple[str, ...], 
                           f"errors and fit are those without them; leave them out")
 
 
-def with_helpers(moments: SampleMoments, frame: pd.DataFrame, helpers: tuple[str, ...], source: str) -> SampleMoments:
-    """``moments`` (a full-information fit's rows) with the helpers' columns beside the items, for the same rows
-    (those answering some item: a row that answers no item is left out as without helpers), and the EM estimates of
-    the means and covariances of items and helpers together (the saturated model of the joint likelihood)."""
+def with_helpers(moments: SampleMoments, frame: pd.DataFrame, helpers: tuple[str, ...], source: str,
+                 design: DesignColumns | None = None) -> SampleMoments:
+    """``moments`` (a full-information fit's rows) with the helpers' columns beside the items, for the rows that
+    answer some item or some helper, and the EM estimates of the means and covariances of items and helpers together
+    (the saturated model of the joint likelihood).  A row that answers no item but a helper is kept: under Graham's
+    (2003) saturated-correlates model the likelihood is that of items and helpers together, to which such a row adds
+    the density of its helpers' values; through the helpers' covariances with the items it moves the items' means
+    and covariances (and the model's estimates) as rows with some answers do (Enders 2010, ch. 5, recalled from
+    memory).  Left out, the rows that answer nothing when the helpers say why (a low helper, say) would leave the
+    rows kept a selected sample, which the helpers are there to prevent.  ``design``: the frequency weights (the one
+    design helpers take), whose weights the rows kept carry."""
     from cfa_tool.data.moments import moments_with_gaps, numeric_columns
 
     values = numeric_columns(frame, helpers, source)
@@ -1220,12 +1228,41 @@ def with_helpers(moments: SampleMoments, frame: pd.DataFrame, helpers: tuple[str
         row, col = infinite[0]
         raise DataError(f"{source}: the missing-data helper '{printable(helpers[col])}' has an infinite value in "
                         f"{cell_words(frame, helpers[col], row_numbers(frame)[row])}")
-    where = pd.Index(row_numbers(frame)).get_indexer(moments.row_numbers)
-    rows = np.hstack([moments.rows, values[where]])
+    numbers = pd.Index(row_numbers(frame))
+    where = numbers.get_indexer(moments.row_numbers)
+    unanswered = (numbers.get_indexer(moments.unanswered_rows) if moments.unanswered_rows is not None
+                  else np.zeros(0, dtype=int))
+    helped = unanswered[~np.isnan(values[unanswered]).all(axis=1)]  # no item answered, some helper
+    kept = np.sort(np.concatenate([where, helped]))  # the file's order
+    items = np.full((len(kept), moments.rows.shape[1]), np.nan)
+    items[np.searchsorted(kept, where)] = moments.rows
+    rows = np.hstack([items, values[kept]])
     where_said = source if moments.group is None else f"{source} (group {moments.group})"
-    weights = moments.design.weights if moments.design is not None else None
+    row_design = moments.design
+    if row_design is not None and design is not None and design.weights is not None:  # frequency weights
+        counts = pd.to_numeric(frame[design.weights]).to_numpy(dtype=float)[kept]
+        row_design = replace(row_design, weights=counts, given=(float(counts.sum()), float(counts @ counts)))
+    weights = row_design.weights if row_design is not None else None
     joint = moments_with_gaps(rows, moments.names + helpers, where_said, weights)
-    return replace(moments, names=joint.names, covariance=joint.covariance, means=joint.means, rows=rows)
+    left = unanswered[~np.isin(unanswered, kept)]
+    return replace(moments, names=joint.names, covariance=joint.covariance, means=joint.means, rows=rows,
+                   design=row_design, n_obs=int(round(row_design.total)) if weights is not None else len(kept),
+                   rows_dropped=moments.rows_dropped - len(helped), row_numbers=np.asarray(numbers[kept]),
+                   unanswered_rows=np.asarray(numbers[left]) if moments.unanswered_rows is not None else None)
+
+
+def analysed_gaps(fit_options, frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None
+                  ) -> np.ndarray:
+    """Which rows miss an answer on one of ``names`` and are analysed all the same: rows that answer nothing are left
+    out and said apart (as the check counts them), but with missing-data helpers a row that answers no item and some
+    helper is analysed (:func:`with_helpers`)."""
+    gap = rows_with_gaps(frame, names, values)
+    if gap.any():
+        kept = ~(np.isnan(values).all(axis=1) if values is not None else frame[list(names)].isna().all(axis=1).to_numpy())
+        if getattr(fit_options, "missing_helpers", ()):
+            kept |= frame[list(fit_options.missing_helpers)].notna().any(axis=1).to_numpy()
+        gap &= kept
+    return gap
 
 
 def rows_with_gaps(frame: pd.DataFrame, names: tuple[str, ...], values: np.ndarray | None = None) -> np.ndarray:
@@ -1251,9 +1288,7 @@ def choose_missing_handling(fit_options, frame: pd.DataFrame, names: tuple[str, 
     if fit_options.test is FitTest.YUAN_BENTLER:  # the robust test of full-information ML
         return replace(fit_options, missing=MissingData.FULL_INFORMATION), []
     robust = fit_options.test is FitTest.ROBUST
-    gap = rows_with_gaps(frame, names, values)
-    if gap.any():  # rows that answer nothing are left out and said apart, as the check counts them
-        gap &= ~(np.isnan(values).all(axis=1) if values is not None else frame[list(names)].isna().all(axis=1).to_numpy())
+    gap = analysed_gaps(fit_options, frame, names, values)
     rows = len(frame)
     if group is not None and group in frame.columns:
         labelled = frame[group].notna().to_numpy()

@@ -234,6 +234,9 @@ class DataSummary:
     row_naming: RowNaming = RowNaming.FILE_ROW
     # columns read under new names (data.renamed_columns.ColumnRename: --rename), which every view names
     renamed: tuple = ()
+    # with missing-data helpers: the rows analysed (in n_obs) that answer no item but a helper, which enter the
+    # helpers' part of the joint likelihood (estimation.auxiliary)
+    helpers_only: int = 0
 
     def __post_init__(self) -> None:
         """No count of rows is negative and none exceeds the rows read (errors.check_rows_counted): a report of
@@ -286,6 +289,8 @@ class DataSummary:
             out["matrix_analysed"] = self.analysed.name.lower()
         if self.without_group:
             out["rows_without_group"] = self.without_group
+        if self.helpers_only:
+            out["rows_answering_only_helpers"] = self.helpers_only
         if self.answer_coding:
             from cfa_tool.data.answer_words import coding_json
 

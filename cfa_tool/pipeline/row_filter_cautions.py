@@ -12,26 +12,36 @@ from cfa_tool.options import Option
 
 
 def row_filter_problems(loaded: LoadedData, spec: Spec | None = None,
-                        items: tuple[str, ...] | None = None) -> tuple[Problem, ...]:
+                        items: tuple[str, ...] | None = None, where: str = "") -> tuple[Problem, ...]:
     """The cautions on ``loaded``'s row filters (data.filters.RowFilter, as apply_filters counted them), in the
     filters' order: :func:`selected_on_item` for a filter on an item of ``spec`` (or, without a model, one of the
-    ``items`` explored) that left out some of its answers, :func:`label_of_several_codes` for one whose label several
-    codes carry."""
+    ``items`` explored) that left out some of its answers (:func:`selections_on_items`), :func:`label_of_several_codes`
+    for one whose label several codes carry.  ``where``: which of several files filtered alike the cautions are about
+    (' on the calibration data (spring.csv)'; '' for one file)."""
     analysed = spec.observed_names if spec is not None else (items or ())
+    on_items = selections_on_items(loaded.row_filters, analysed)
     found: list[Problem] = []
     for f in loaded.row_filters:
-        if f.column in analysed and f.dropped:
-            found.append(selected_on_item(f, spec))
+        if f in on_items:
+            found.append(selected_on_item(f, spec, where))
         if f.shared:
-            found.append(label_of_several_codes(f))
+            found.append(label_of_several_codes(f, where))
     return tuple(found)
 
 
-def selected_on_item(f, spec: Spec | None) -> Problem:
+def selections_on_items(filters, analysed) -> tuple:
+    """The row ``filters`` (data.filters.RowFilter, as apply_filters counted them) that select rows by their answers
+    to one of the ``analysed`` items and left out some of its answers: the one rule of the range-restriction caution
+    (:func:`selected_on_item`) and of the methods paragraph's sentence on it."""
+    return tuple(f for f in filters if f.column in analysed and f.dropped)
+
+
+def selected_on_item(f, spec: Spec | None, where: str = "") -> Problem:
     """A row filter that selects rows by their answers to a model item: among the rows kept the item's answers
     spread differently (a cut at one end narrows them), which changes its correlations with the other items and so
     its loading, its factor's variance and the factor's reliability: range restriction, a textbook effect (Pearson
-    1903; Thorndike 1949, recalled from memory).  The rows are analysed as kept: the population may be meant so."""
+    1903; Thorndike 1949, recalled from memory).  The rows are analysed as kept: the population may be meant so.
+    ``where``: the file, as :func:`row_filter_problems` takes it."""
     item = f.column
     factors = ([factor.name.text for factor in spec.factors if any(i.text == item for i in factor.indicators)]
                if spec is not None else [])
@@ -40,7 +50,7 @@ def selected_on_item(f, spec: Spec | None) -> Problem:
             else f"the loadings of '{printable(item)}'")
     return Problem(
         ProblemKind.SELECTED_ON_ITEM, (), float(f.dropped),
-        f"Row filter '{printable(str(f))}' selects rows by their answers to '{printable(item)}', "
+        f"Row filter '{printable(str(f))}'{where} selects rows by their answers to '{printable(item)}', "
         f"{f'an item of {of}' if factors else 'one of the items analysed'}: it "
         f"left out {f.dropped} row{'s' if f.dropped != 1 else ''} with an answer to it. Among the rows kept the "
         f"item's answers spread differently (a cut at one end narrows them), which changes its correlations with the "
@@ -52,11 +62,12 @@ def selected_on_item(f, spec: Spec | None) -> Problem:
         f"the selection.")
 
 
-def label_of_several_codes(f) -> Problem:
+def label_of_several_codes(f, where: str = "") -> Problem:
     """A row filter comparing the value labels of a coded column (SPSS, Stata) with a label that several codes
     carry (1 and 3 both 'north'): it keeps (or, with '!=', leaves out) the rows of every such code, as the group
     column reads them as one group (data.labels.label_notes).  A caution, not a refusal: the data file says the codes
-    mean the same, and the researcher can filter by one code (a number compares with the codes) when they do not."""
+    mean the same, and the researcher can filter by one code (a number compares with the codes) when they do not.
+    ``where``: the file, as :func:`row_filter_problems` takes it."""
     codes = [f"{printable(code)} ({n} row{'s' if n != 1 else ''})" for code, n in f.shared]
     listed = ", ".join(codes[:-1]) + f" and {codes[-1]}"
     did = "kept" if f.operator == "=" else "left out"
@@ -65,7 +76,7 @@ def label_of_several_codes(f) -> Problem:
     both = "both" if len(f.shared) == 2 else "all"
     return Problem(
         ProblemKind.FILTER_LABEL_OF_SEVERAL_CODES, (), float(len(f.shared)),
-        f"Row filter '{printable(str(f))}' compares the value labels of '{column}', and codes {listed} {both} carry "
+        f"Row filter '{printable(str(f))}'{where} compares the value labels of '{column}', and codes {listed} {both} carry "
         f"the label '{printable(str(f.value))}': the filter {did} the rows of every one of them.",
         f"if the codes are different categories, filter by a code ({Option.KEEP.given(f'{column} {f.operator} {first}')}"
         f" compares the codes themselves) or give the codes different value labels in the data file; if they are one "

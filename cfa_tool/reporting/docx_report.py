@@ -201,15 +201,28 @@ def _figure_areas(document, note: str = "", heading: bool = False) -> tuple[tupl
 
 
 def _set_orientation(document, landscape: bool) -> None:
-    """A new section (on a new page) when the orientation changes: a landscape page for a wide table."""
+    """A new section (on a new page) when the orientation changes: a landscape page for a wide table.  A section
+    that holds nothing yet is turned instead (a new page and no content would print as an empty page); so the
+    caller turns the page back only when something follows (an empty portrait page ended a report whose last table
+    was landscape)."""
     current = document.sections[-1]
     if (current.orientation == WD_ORIENT.LANDSCAPE) == landscape:
         return
-    section = document.add_section(WD_SECTION.NEW_PAGE)
+    section = current if _section_is_empty(document) else document.add_section(WD_SECTION.NEW_PAGE)
     width, height = section.page_width, section.page_height
     section.orientation = WD_ORIENT.LANDSCAPE if landscape else WD_ORIENT.PORTRAIT
     section.page_width, section.page_height = max(width, height) if landscape else min(width, height), \
         min(width, height) if landscape else max(width, height)
+
+
+def _section_is_empty(document) -> bool:
+    """Whether the last section holds nothing yet: the body ends, before its own section properties, on the
+    paragraph that closes the section before (python-docx's add_section puts that section's properties in it)."""
+    body = [child for child in document.element.body.iterchildren() if child.tag != qn("w:sectPr")]
+    if not body:
+        return True
+    last = body[-1]
+    return last.tag == qn("w:p") and last.find(f"{qn('w:pPr')}/{qn('w:sectPr')}") is not None
 
 
 # the order the properties of a table and of a cell must come in (ECMA-376 Part 1, 17.4.60 tblPr and 17.4.70 tcPr):
@@ -469,7 +482,7 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
                     picture.keep_with_next = bool(figure.note) and k == len(pieces) - 1  # the note on its page
                 if figure.note:
                     _note(document, figure.note)
-            _set_orientation(document, landscape=False)
+    # each table turns its page as it needs; the text after them turns it back (never an empty page at the end)
     section = ""
     for number, table in enumerate(report.tables, start=1):
         if table.section and table.section != section:
@@ -477,7 +490,8 @@ def report_docx(report, dpi: int = DEFAULT_DPI) -> bytes:
             document.add_heading(printable(table.section), level=2).paragraph_format.keep_with_next = True
         section = table.section
         _add_table(document, table, number)
-    _set_orientation(document, landscape=False)
+    if report.listings or report.notes or report.cautions:
+        _set_orientation(document, landscape=False)
     for listing in report.listings:
         document.add_heading(printable(listing.title), level=2)
         for line in listing.text.splitlines():

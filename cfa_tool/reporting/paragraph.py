@@ -481,9 +481,14 @@ def _sample_phrase(result) -> str:
         text += f"; {kept}"
     without_group = getattr(data, "without_group", 0)
     dropped = data.rows_dropped - without_group
+    helped = getattr(data, "helpers_only", 0)
+    if helped:  # kept by the saturated-correlates likelihood (pipeline.inputs.with_helpers)
+        text += (f"; {helped} of these rows answered no item but an auxiliary variable and entered the likelihood "
+                 f"through {'it' if len(result.method.helpers) == 1 else 'them'}")
     if dropped:
         if full_information or result.method.missing is MissingData.PAIRWISE:
-            text += (f"; {dropped} of {data.rows_read} rows answered no model variable and "
+            neither = " or auxiliary variable" if result.method.helpers else ""
+            text += (f"; {dropped} of {data.rows_read} rows answered no model variable{neither} and "
                      f"{'was' if dropped == 1 else 'were'} left out")
         else:
             text += f"; {dropped} of {data.rows_read} rows with missing answers were excluded listwise"
@@ -532,13 +537,51 @@ def _pairs_by_group(result) -> str:
     return " over the groups and " + _list([f"{low} to {high} in {_name(label)}" for label, (low, high) in ranges])
 
 
-def _filtered(data) -> str:
+def _filtered(data, file: str = "the data file") -> str:
     """' of the 301 rows in the data file, those where school was Pasteur': the rows the row filters (--keep) chose,
-    each filter worded by RowFilter.in_words ('' without filters)."""
+    each filter worded by RowFilter.in_words ('' without filters); ``file``: the file's words (replicate's two files
+    are named)."""
     if not data.row_filters:
         return ""
-    return (f" of the {data.rows_in_file} rows in the data file, those where "
+    return (f" of the {data.rows_in_file} rows in {file}, those where "
             f"{_list([f.in_words() for f in data.row_filters])}")
+
+
+def range_restriction_sentence(filters, analysed, factor_items: dict | None = None, where: str = "") -> str:
+    """That row ``filters`` (data.filters.RowFilter) selected rows by their answers to ``analysed`` items, by the one
+    rule of the report's caution (pipeline.row_filter_cautions.selections_on_items): the items' range is restricted
+    among the rows kept, so their loadings, their factors' variances and reliability describe those rows (range
+    restriction; the caution gives its sources).  ``factor_items``: each factor's items (:func:`_factor_items`; None
+    for models that place the items differently, as a comparison's may); ``where``: 'In the calibration sample, '
+    for one of two files.  '' when no filter selected on an item."""
+    from cfa_tool.pipeline.row_filter_cautions import selections_on_items
+
+    found = selections_on_items(filters, analysed)
+    if not found:
+        return ""
+    items = list(dict.fromkeys(f.column for f in found))
+    factors = [factor for factor, on in (factor_items or {}).items() if any(x in on for x in items)]
+
+    def of(item: str) -> str:
+        mine = [factor for factor, on in (factor_items or {}).items() if item in on]
+        return f"an item of {_names(mine)}; " if mine else ""
+
+    parts = [f"{_name(f.column)} ({of(f.column)}{f.dropped} row{'s' if f.dropped != 1 else ''} with an answer to it "
+             f"left out by {f.text!r})" for f in found]
+    many = len(items) > 1
+    loading = f"the loading{'s' if many else ''} of {_names(items)}"
+    what = (f"{loading}, the variance{'s' if len(factors) > 1 else ''} of {_names(factors)} and "
+            f"{'their' if len(factors) > 1 else 'its'} reliability" if factors else
+            f"{loading}, the variances of the factors {'they measure' if many else 'it measures'} and their reliability")
+    return _capital(f"{where}the rows were selected by their answers to {_list(parts)}, so "
+                    f"{'those items' if many else 'that item'} had a restricted range among the rows analysed (range "
+                    f"restriction): {what} describe the rows kept, not the whole sample, and usually come out smaller.")
+
+
+def _fit_range_restriction(result) -> str:
+    """:func:`range_restriction_sentence` of a fit (or a ladder's first step) of rows."""
+    filters = getattr(result.data, "row_filters", ())
+    return range_restriction_sentence(filters, result.observed, _factor_items(result)) if filters else ""
 
 
 def renamed_sentence(data) -> str:
@@ -809,6 +852,9 @@ def methods_paragraph(result) -> str:
     renamed = renamed_sentence(result.data)
     if renamed:  # the names above are those the columns were read under
         parts.insert(1, renamed)
+    restricted = _fit_range_restriction(result)
+    if restricted:  # right after the sentence naming the rows the filters chose
+        parts.insert(1, restricted)
     parts += _design_sentences([result])
     missingness = _completely_at_random_sentence(result)
     if missingness:
@@ -973,6 +1019,9 @@ def comparison_paragraph(comparison) -> str:
     renamed = renamed_sentence(first.data)  # the models read one file
     if renamed:
         parts.append(renamed)
+    restricted = range_restriction_sentence(first.data.row_filters, {x for r in results for x in r.observed})
+    if restricted:  # the models may place the items differently: their factors are not named
+        parts.append(restricted)
     parts += [_model_sentences(f"{label[name]} ({name})", r) for name, r in zip(names, results)]
     parts += _design_sentences(list(results))
     statistic = f" (the {first.robust.test.label} statistic and robust indices)" if first.robust is not None else ""
@@ -1140,6 +1189,9 @@ def invariance_paragraph(result, levels) -> str:
         departures = _departures(d, shape)
         if departures:
             parts.append(departures.replace("The model also included", "The configural model also included", 1))
+    restricted = _fit_range_restriction(first)
+    if restricted:
+        parts.append(restricted)
     coding = answer_coding_sentence(first.data)
     if coding:
         parts.append(coding)
@@ -1154,6 +1206,8 @@ def invariance_paragraph(result, levels) -> str:
                  f"{guides_text(CONFIGURAL_INDICES, signs=True)}; Hu & Bentler, 1999); each later model by "
                  f"{rule}" + (f", the difference test being {_list([m.phrase for m in methods])}" if methods else "")
                  + ".")
+    if result.freed:  # the search's guide, as the table of freed parameters and the JSON name it
+        parts.append(f"The partial-invariance search was guided by {result.score_tests.phrase}.")
     problems = _step_problems(steps)
     if problems:  # problems first: before any step reads as held
         parts.append(problems)
@@ -1230,10 +1284,12 @@ def invariance_paragraph(result, levels) -> str:
 
 # ---------------------------------------------------------------- replication
 
-def _sample_rows_phrase(rows) -> str:
+def _sample_rows_phrase(rows, data=None, file: str = "") -> str:
     """One sample's rows (workflows.replication.SampleRows) and how those with gaps were used, with what that
-    assumes (Little & Rubin, 2002)."""
-    text = f"N = {rows.analysed} of {rows.read} rows read"
+    assumes (Little & Rubin, 2002); with ``data`` (its fit's data summary) that row filters chose, the rows of
+    ``file`` they kept (:func:`_filtered`)."""
+    filters = data is not None and data.row_filters
+    text = f"N = {rows.analysed}{_filtered(data, file)}" if filters else f"N = {rows.analysed} of {rows.read} rows read"
     if rows.missing is MissingData.FULL_INFORMATION and rows.with_gaps:
         text += (f"; {rows.with_gaps} with missing answers, whose every answer was used by full-information maximum "
                  f"likelihood, which assumes that {MISSING_AT_RANDOM} (Little & Rubin, 2002)")
@@ -1326,8 +1382,15 @@ def replication_paragraph(replications) -> str:
                  f"{_sample_rows_phrase(first.rows[1])}."] if first.rows else []
     else:
         parts = [f"The replication of {model} was examined in two samples: the model was estimated in a calibration "
-                 f"sample ({_sample_rows_phrase(first.rows[0])}) and refitted in a validation sample "
-                 f"({_sample_rows_phrase(first.rows[1])}), each time by {by}."] if first.rows else []
+                 f"sample ({_sample_rows_phrase(first.rows[0], result.data, first.calibration)}) and refitted in a "
+                 f"validation sample ({_sample_rows_phrase(first.rows[1], first.loose.data, first.validation)}), each "
+                 f"time by {by}."] if first.rows else []
+    if first.split is not None:  # the filters chose the rows of the file before the split
+        parts.append(range_restriction_sentence(first.split.filters, result.observed, _factor_items(result)))
+    else:
+        parts += [range_restriction_sentence(r.data.row_filters, r.observed, _factor_items(r), f"in the {name} sample, ")
+                  for name, r in (("calibration", result), ("validation", first.loose))]
+    parts = [p for p in parts if p]
     coding = answer_coding_sentence(result.data)
     if coding:
         parts.append(coding)

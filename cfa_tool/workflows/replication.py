@@ -65,7 +65,7 @@ import pandas as pd
 
 from cfa_tool.model.parameters import one_group_only
 from cfa_tool.pipeline.inputs import (_described, data_problems, load_spec, make_options, odd_values_named,
-                                      read_inputs_with_notes, refit_missing_handling)
+                                      read_inputs_with_notes, refit_missing_handling, with_row_filters)
 from cfa_tool.assessment.admissibility import inadmissible_words
 from cfa_tool.data.answer_words import coding_json, coding_record
 from cfa_tool.data.matching import check_columns
@@ -526,7 +526,7 @@ def _not_the_same_rows(spec: Spec, first: pd.DataFrame, second: pd.DataFrame, fi
 
 def _one_file_instead() -> str:
     """The other way to check a model with one file, as the caller asks for it."""
-    return ("or give one file as --data to split it in two random halves"
+    return (f"or give one file as {Option.DATA} to split it in two random halves"
             if check.interface() is check.Interface.COMMAND_LINE else "or split one data set in two random halves with split_half")
 
 
@@ -584,7 +584,12 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
                                        _moments(spec, val_frame, val_source, missing), **options)
     left_out = tuple(p for r, source in ((result.calibration_result, cal_source), (result.loose, val_source))
                      for p in _left_out(r.data.rows_dropped, r.data.rows_read, source, r.method.missing, ordinal_items))
-    return replace(result, data_problems=tuple(dict.fromkeys(p for s in read for p in data_problems(s, spec))) + left_out,
+    # each file's row filters kept with its fit (the methods paragraph names them) and its cautions naming the file:
+    # the two files' range restrictions read alike, and one left out as a repeat, without it
+    found = tuple(dict.fromkeys(p for s, which in zip(read, ("calibration", "validation"))
+                                for p in data_problems(s, spec, where=f" on the {which} data ({s.source})")))
+    return replace(result, calibration_result=with_row_filters(result.calibration_result, read[0]),
+                   loose=with_row_filters(result.loose, read[1]), data_problems=found + left_out,
                    notes=tuple(dict.fromkeys(n for file_notes in notes for n in file_notes)),
                    answer_coding=coding_record(spec))
 

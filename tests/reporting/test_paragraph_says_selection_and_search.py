@@ -1,0 +1,139 @@
+"""The methods paragraph says what the cautions and tables say (session 13):
+
+* a row filter on a model item (range restriction: the report's first caution says it) gets one sentence in the
+  paragraph of fit, compare, invariance and replicate, from the filters the caution counted
+  (pipeline.row_filter_cautions.selections_on_items), and none for a filter on another column;
+* which score tests guided a partial-invariance search (normal-theory or Satorra's 1989 robust ones: the table of
+  freed parameters and the JSON name them) is said in the paragraph when the search freed something;
+* replicate with two files and --keep names the filter and the rows it kept in each file's sample, as the split-half
+  paragraph does, and each file's range-restriction caution names its file (calibration or validation): they read
+  alike without it.
+
+Data: the bundled demo (a fictional transit agency's rider survey, simulated with a fixed seed), the rows each filter
+leaves out counted with pandas; Holzinger & Swineford (1939) for the partial search (x3's intercept freed at the
+scalar step, as tests/workflows/test_invariance_robust_reference.py checks against a numpy computation)."""
+
+from __future__ import annotations
+
+import pandas as pd
+
+import cfa_tool
+from cfa_tool.reporting.paragraph import (comparison_paragraph, invariance_paragraph, methods_paragraph,
+                                          replication_paragraph)
+from cfa_tool.workflows.invariance import LEVELS, ScoreTests
+from cfa_tool.workflows.replication import Replications, replicate, split_half
+from tests.conftest import THREE_FACTORS, holzinger_swineford
+
+FOUR = "factor punctuality: on_time, short_wait, accurate_info, easy_transfer\n"
+RESTRICTED = "had a restricted range among the rows analysed (range restriction)"
+
+
+def _flat(text: str) -> str:
+    return " ".join(text.split())
+
+
+def _left_out(frame: pd.DataFrame) -> int:
+    """Rows with an answer to on_time that 'on_time >= 3' leaves out, by pandas."""
+    return int((frame["on_time"] < 3).sum())
+
+
+def test_fit_says_the_selection_on_an_item(rider_demo, rider_model):
+    text = _flat(methods_paragraph(cfa_tool.fit(rider_model, rider_demo, keep="on_time >= 3")))
+    assert (f"The rows were selected by their answers to on_time (an item of punctuality; {_left_out(rider_demo)} rows "
+            f"with an answer to it left out by 'on_time >= 3'), so that item {RESTRICTED}: the loading of on_time, the "
+            f"variance of punctuality and its reliability describe the rows kept") in text
+    # right after the sentence that names the rows the filter chose
+    assert text.index("those where on_time was at least 3") < text.index("The rows were selected") < \
+        text.index("The scale of each factor")
+    # a filter on a column that is not an item, or one that leaves out no answer: no such sentence
+    for keep in ("district = north", "on_time >= 1"):
+        assert "range restriction" not in methods_paragraph(cfa_tool.fit(rider_model, rider_demo, keep=keep))
+
+
+def test_compare_and_invariance_say_it_too(rider_demo, rider_model):
+    compared = _flat(comparison_paragraph(cfa_tool.compare([rider_model, rider_model + "covary on_time, short_wait\n"],
+                                                           rider_demo, keep="on_time >= 3")))
+    # the models may place the item differently: its factor is not named
+    assert (f"The rows were selected by their answers to on_time ({_left_out(rider_demo)} rows with an answer to it "
+            f"left out by 'on_time >= 3'), so that item {RESTRICTED}: the loading of on_time, the variances of the "
+            f"factors it measures and their reliability") in compared
+    ladder = _flat(invariance_paragraph(cfa_tool.invariance(rider_model, rider_demo, "district", keep="on_time >= 3"),
+                                        LEVELS))
+    assert f"to on_time (an item of punctuality; {_left_out(rider_demo)} rows" in ladder and RESTRICTED in ladder
+
+
+def test_the_paragraph_names_the_score_tests_of_the_partial_search():
+    data = holzinger_swineford()
+    for test, kind in (("normal", ScoreTests.NORMAL), ("robust", ScoreTests.ROBUST)):
+        ladder = cfa_tool.invariance(THREE_FACTORS, data, "school", partial="auto", test=test)
+        assert ladder.freed and ladder.score_tests is kind
+        text = _flat(invariance_paragraph(ladder, LEVELS))
+        assert f"The partial-invariance search was guided by {kind.phrase}." in text
+        # said once, before the steps' results that name what the search freed
+        assert text.count("was guided by") == 1
+        assert text.index("was guided by") < text.index("chosen one at a time by score tests")
+    robust = _flat(invariance_paragraph(cfa_tool.invariance(THREE_FACTORS, data, "school", partial="auto",
+                                                            test="robust"), LEVELS))
+    assert "generalized score test of Satorra 1989" in robust
+    # no search freed anything: nothing to say
+    assert "was guided by" not in invariance_paragraph(cfa_tool.invariance(THREE_FACTORS, data, "school"), LEVELS)
+
+
+def _two_files(rider_demo, tmp_path):
+    half = len(rider_demo) // 2
+    first, second = rider_demo.iloc[:half], rider_demo.iloc[half:]
+    paths = [tmp_path / "spring.csv", tmp_path / "autumn.csv"]
+    for frame, path in zip((first, second), paths):
+        frame.to_csv(path, index=False)
+    return (first, second), paths
+
+
+def test_replicate_with_two_files_names_each_files_filter(rider_demo, rider_model, tmp_path):
+    (first, second), paths = _two_files(rider_demo, tmp_path)
+    rep = replicate(rider_model, *paths, keep="on_time >= 3")
+    text = _flat(replication_paragraph(Replications((rep,))))
+    for frame, path, name in zip((first, second), paths, ("calibration", "validation")):
+        kept = int((frame["on_time"] >= 3).sum())  # pandas: the rows the filter keeps
+        empty = int(frame["on_time"].isna().sum())
+        rows = f"of the {len(frame)} rows in {path}, those where on_time was at least 3" + (
+            f" ({empty} row{'s' if empty != 1 else ''} with no value of on_time left out)" if empty else "")
+        assert f"a {name} sample (N = {kept} {rows}" in text
+        assert (f"In the {name} sample, the rows were selected by their answers to on_time (an item of punctuality; "
+                f"{_left_out(frame)} rows with an answer to it") in text
+        caution = [p.explanation for p in rep.data_problems
+                   if p.explanation.startswith(f"Row filter 'on_time >= 3' on the {name} data ({path}) selects rows")]
+        assert len(caution) == 1 and f"it left out {_left_out(frame)} rows with an answer to it" in caution[0]
+    # a filter on another column: the rows named, no range restriction
+    other = _flat(replication_paragraph(Replications((replicate(rider_model, *paths, keep="district = north"),))))
+    assert f"those where district was north" in other and "range restriction" not in other
+
+
+def test_split_half_says_the_selection_too(rider_demo, rider_model):
+    pair = split_half(rider_model, rider_demo, seed=5, keep="on_time >= 3")
+    text = _flat(replication_paragraph(Replications(pair)))
+    assert (f"The rows were selected by their answers to on_time (an item of punctuality; {_left_out(rider_demo)} "
+            f"rows with an answer to it left out by 'on_time >= 3')") in text
+    assert f"selects rows by their answers to 'on_time'" in pair[0].data_problems[0].explanation
+
+
+def test_the_one_file_advice_takes_the_flag_from_the_option_vocabulary(rider_demo, tmp_path, monkeypatch):
+    """replicate's refusal of the same file twice names the option of one file as options.Option declares it (on the
+    command line its flag, from Python the function), not as text of its own."""
+    from cfa_tool.errors import OptionError
+    from cfa_tool.options import Option, on_command_line
+
+    path = tmp_path / "riders.csv"
+    rider_demo.to_csv(path, index=False)
+    monkeypatch.setattr(Option.DATA, "flag", "--one-data-file")  # a renamed flag: the advice follows it
+    with on_command_line():
+        try:
+            replicate(FOUR, path, path)
+        except OptionError as error:
+            said = str(error)
+        else:
+            raise AssertionError("the same file twice was not refused")
+    assert "or give one file as --one-data-file to split it in two random halves" in said
+    try:
+        replicate(FOUR, path, path)
+    except OptionError as error:
+        assert "with split_half" in str(error)
