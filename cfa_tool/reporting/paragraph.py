@@ -1221,12 +1221,12 @@ def invariance_paragraph(result, levels) -> str:
         if earlier and not step.partial:
             kept = _list([f"{parameter_words(f.kind, f.variables, quoted=True)} (freed at the {level} step)"
                           for f, level in earlier])
-            extra = f" and {declared} not held equal as the model file declares" if step.declared else ""
+            extra = f" and {declared} specified as not held equal" if step.declared else ""
             parts.append(f"{name} invariance, partial with {kept} still free{extra}, {_held(step, basis)} "
                          f"({_step_figures(step)}).")
         elif step.declared and not step.partial:
-            parts.append(f"{name} invariance, partial with {declared} not held equal across groups as the model file "
-                         f"declares, {_held(step, basis)} ({_step_figures(step)}).")
+            parts.append(f"{name} invariance, partial with {declared} specified as not held equal across groups, "
+                         f"{_held(step, basis)} ({_step_figures(step)}).")
         elif step.partial:
             full = step.full_test
             with_all = (f"{CHI}({full.df_difference}) = {full.chi_square_difference:.2f}, {_p(full.p_value)}"
@@ -1238,7 +1238,7 @@ def invariance_paragraph(result, levels) -> str:
             state = ("still did not hold" if not step.holds and step.result.admissible else
                      "held" if step.holds and not basis else "met its test" if step.holds else _held(step, basis))
             after = f" but cannot be read as held: it rests on {basis}" if step.holds and basis else ""
-            others = f"with {declared} not held equal as the model file declares and every other equality" \
+            others = f"with {declared} specified as not held equal and every other equality" \
                 if step.declared else "with every equality"
             if earlier:
                 others += " but those freed at earlier steps"
