@@ -728,6 +728,19 @@ def _keyed_sum_words(rows) -> str:
     return f", with {_names(reversed_items)} reversed in the sums ({why})"
 
 
+def _negative_count(result, methods, groups: list) -> str:
+    """How many standardized loadings of the items are negative: '6 negative', with groups '6 negative in each group'
+    or 'negative: 6 in A and 5 in B' (the rows of every group counted together would read as one group's)."""
+    rows = [r for r in result.estimates if r.kind == "loading" and r.variables[1] in result.observed
+            and r.variables[0] not in methods and r.standardized < 0]
+    if not groups:
+        return f"{len(rows)} negative"
+    counts = [sum(r.group == g for r in rows) for g in groups]
+    if len(set(counts)) == 1:
+        return f"{counts[0]} negative in each group"
+    return "negative: " + _list([f"{n} in {g}" for n, g in zip(counts, groups)])
+
+
 def _reliability_sentence(result) -> str:
     """The reliability of each factor's keyed sum score as the fit computed it (assessment.reliability): omega
     (McDonald 1999), for a higher-order factor omega hierarchical (Zinbarg, Revelle, Yovel & Li 2005); for ordinal
@@ -882,16 +895,19 @@ def methods_paragraph(result) -> str:
                 and r.variables[0] not in methods]
     second = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[1] not in result.observed]
     blocks = getattr(result, "exploratory", ())
+    groups = [g.label for g in result.groups] if result.multigroup else []
+    # with groups the rows are every group's: the range spans them, and the count of negative ones is per group
+    across = f" across the {_count(len(groups), 'group')}" if groups else ""
     if loadings:
         which = "on the confirmatory factors " if blocks else ("of the items " if second else "")
         negative = sum(v < 0 for v in loadings)
         if negative:  # reverse-keyed items: a range from -.76 to .81 would read as if -.76 were the weakest
             sizes = [abs(v) for v in loadings]
             parts.append(f"Standardized loadings {which}ranged from {unit(min(sizes), 2)} to {unit(max(sizes), 2)} in "
-                         f"absolute value ({negative} negative).")
+                         f"absolute value{across} ({_negative_count(result, methods, groups)}).")
         else:
             parts.append(f"Standardized loadings {which}ranged from {unit(min(loadings), 2)} to "
-                         f"{unit(max(loadings), 2)}.")
+                         f"{unit(max(loadings), 2)}{across}.")
     for factor in sorted(methods):  # apart from the traits' loadings, which they would otherwise widen
         items = _method_items(result, factor)
         on_factor = [r.standardized for r in result.estimates if r.kind == "loading" and r.variables[0] == factor
@@ -907,6 +923,10 @@ def methods_paragraph(result) -> str:
     # the estimated correlations: one the model fixes (at 0 in a bifactor model) the methods part states
     correlated = [r for r in result.estimates if r.kind == "factor_covariance" and r.free]
     corr = [r.standardized for r in correlated]
+    if len(corr) > len(groups) and groups:  # each group's correlations, standardized in its own group
+        parts.append(f"Factor correlations ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}{across}.")
+    elif corr and groups:
+        parts.append(f"The factor correlation ranged from {unit(min(corr), 2)} to {unit(max(corr), 2)}{across}.")
     if corr and not result.multigroup:
         which = " of the confirmatory factors" if blocks else ""
         if higher and all(set(r.variables) <= higher for r in correlated):

@@ -101,3 +101,22 @@ def test_a_fit_in_groups_without_equalities_says_none_were_imposed(hs_data):
     held = " ".join(methods_paragraph(cfa_tool.fit(THREE_FACTORS + "invariance metric\n", hs_data,
                                                    group="school")).split())
     assert "No invariance constraints" not in held and "Held equal across groups: loadings" in held
+
+
+def test_loadings_and_correlations_of_every_group_are_said_to_span_the_groups():
+    # new-user trial s13: "ranged from .34 to .80 in absolute value (12 negative)" for a 15-item model in two groups:
+    # the rows of both groups pooled without a word. x2 answered the other way round (-x2; not a marker) loads
+    # negatively in both schools of Holzinger & Swineford (1939): one negative loading in each group, not "2 negative".
+    data = holzinger_swineford()
+    data["x2"] = -data["x2"]
+    result = cfa_tool.fit(THREE_FACTORS, data, group="school")
+    text = _flat(methods_paragraph(result))
+    loadings = [abs(r.standardized) for r in result.estimates if r.kind == "loading"]
+    assert sum(r.standardized < 0 for r in result.estimates if r.kind == "loading") == 2  # one per school
+    low, high = f"{min(loadings):.2f}".lstrip("0"), f"{max(loadings):.2f}".lstrip("0")
+    assert (f"Standardized loadings ranged from {low} to {high} in absolute value across the two groups "
+            f"(1 negative in each group).") in text
+    corr = [r.standardized for r in result.estimates if r.kind == "factor_covariance" and r.free]
+    assert len(corr) == 6  # three correlations in each school, each standardized in its own school
+    assert (f"Factor correlations ranged from {min(corr):.2f} to {max(corr):.2f} across the two groups."
+            .replace("0.", ".")) in text
