@@ -24,7 +24,7 @@ from cfa_tool.options import own_keywords
 from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_category_notes,
                                       make_options, moments_for, data_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
-                                      with_missing_reading, with_rows_read)
+                                      with_design_weights, with_missing_reading, with_rows_read)
 from cfa_tool.assessment.admissibility import ProblemKind, group_size_problems
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.model.description import parameter_words
@@ -329,7 +329,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                                  rename=rename)
     frame, source = loaded.frame, loaded.source
     # values that look like no answers, among the rows with a group label: first among the cautions
-    analysed = analysed_odd_values(loaded, spec, group)
+    # the weights parsed once, as fit parses them, for the check of the design and the groups weighted out
+    analysed = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
     found = data_problems(analysed, spec, group, design)  # as fit gives them
     data_cautions = tuple(p.line() for p in found)
     if spec.invariant:
@@ -339,7 +340,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     ordinal_items = ordinal_items_of(spec, ordinal)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None:
-        frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
+        frame, design_notes = check_design(frame, design, spec.observed_names, group, source, analysed.weights)
         read_notes = list(read_notes) + design_notes
         if not ordinal_items:  # ordinal items always get sandwich errors and adjusted tests
             fit_options = design_test(fit_options, design)
