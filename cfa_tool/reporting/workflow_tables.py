@@ -967,7 +967,7 @@ def not_carried_line(not_carried, power: bool = True) -> list[str]:
     if power:
         return [f"{said}, so the figures are those of such a sample (with a design effect or missing answers, power "
                 f"is lower)."]
-    return [f"{said} (--missing removes a share of the answers completely at random)."]
+    return [f"{said} ({Option.SIMULATED_MISSING} removes a share of the answers completely at random)."]
 
 
 def few_replications(replications: int) -> tuple[str, ...]:
@@ -1156,7 +1156,7 @@ def check_report(found) -> Report:
     lines = found.summary().splitlines()
     rows = [[name, "100%" if share >= 1 else _percent_below_all(share)] for name, share in found.coverage.items()]
     counted = ("A value that looks like no answer (named above) counts as an answer here, as the fit would count it; "
-               "marked as missing (--missing-codes, or an empty cell), it would not."
+               f"marked as missing ({Option.MISSING_CODES}, or an empty cell), it would not."
                if any(p.kind is ProblemKind.VALUES_NOT_ANSWERS for p in found.problems) else None)
     table = _table("coverage", "Share of rows answering each model variable", [("Variable", "l"), ("Answered", "r")],
                    rows, counted, values=(["Variable", "Share answering"], [[k, v] for k, v in found.coverage.items()]))
