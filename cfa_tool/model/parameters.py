@@ -436,10 +436,15 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         # the tie is named where there is one (a group's mean held equal to the first group's names the tie)
         at = next((i for i, k in enumerate(keys) if k in tied_to), 0)
         first_key, why = keys[at], reasons[at]
-        if multi and ref.group is None:
+        # a factor mean fixed at 0 in every group for want of equal intercepts: its reason says 'every group' itself
+        everywhere = (multi and ref.kind == "mean" and first_key not in tied_to and first_key not in fixed_by
+                      and all(entries[(h, *ref.key())]["fixed"] is not None for h in range(G)))
+        if multi and ref.group is None and not everywhere:
             why = f"fixed in every group (in group {group_labels[first_key[0]]}: {why})"
+        how = (" (the invariance command reads it at the step that holds the intercepts equal)"
+               if everywhere and word == "a start value" else "")
         return _fail(spec, f"{ref} is {why}, so {word} on it has no effect; remove the {word.removeprefix('a ')}"
-                           f"{' or the tie' if first_key in tied_to else ''}", ref)
+                           f"{' or the tie' if first_key in tied_to else ''}{how}", ref)
 
     for setting in spec.starts:
         for ref in setting.refs:
@@ -558,13 +563,20 @@ def _start_values(spec: Spec, groups_of, free_index, multi: bool) -> dict[int, f
     return {index: value for index, (value, _, _) in starts.items()}
 
 
+#: why a factor mean with groups is fixed at 0 in every group (a start on it cannot apply in a plain fit)
+MEANS_FIXED_EVERYWHERE = ("fixed at 0 in every group: a factor's mean is estimated only in the groups after the "
+                          "first, and only when the loadings and intercepts of its indicators are held equal across "
+                          "groups ('invariance scalar'), which this model does not do")
+
+
 def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by: dict, tied_to: dict, multi: bool,
                   group_labels: tuple[str, ...]) -> str | None:
     """Why the entry ``key`` (group, kind, names) is not a free parameter, in words that follow 'PARAMETER is'
     ('fixed at 1 by the 'fix' statement on line 4', 'fixed through its tie to loading(f, a) ...'), or None when
-    it is free.  With groups, a factor mean that the model fixes at 0 only because nothing identifies it counts as
-    free: the invariance ladder frees it at the step that holds its indicators' intercepts equal, and the
-    population of a power study with groups reads each group's mean from 'start' (workflows.group_population)."""
+    it is free.  With groups, a factor mean that the model fixes at 0 counts as free at a step of the invariance
+    ladder (``Spec.ladder_step``): the ladder frees it at the step that holds its indicators' intercepts equal, and
+    the population of a power study with groups reads each group's mean from 'start' (workflows.group_population);
+    in a plain fit it is fixed, and a start on it cannot apply."""
     e = entries[key]
     g, kind, names = key
     if key in effects:
@@ -597,9 +609,16 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
         return (f"fixed at {value:g} to give the latent response of the ordinal item '{names[0]}' its "
                 f"{'origin' if kind == 'intercept' else 'unit'} (Wu & Estabrook 2016)")
     if kind == "mean":
-        # with groups, a start on a factor mean fixed at 0 can apply at another step of the invariance ladder, and
-        # in a population with groups (power of the invariance tests) it gives the group's mean
-        return None if multi else "fixed at 0: with one group a factor's mean is 0, which sets the origin of its scale"
+        if not multi:
+            return "fixed at 0: with one group a factor's mean is 0, which sets the origin of its scale"
+        if spec.ladder_step:
+            # a start on a factor mean fixed at 0 applies at a later step of the invariance ladder, and in a
+            # population with groups (power of the invariance tests) it gives the group's mean
+            return None
+        if any(entries[(h, kind, names)]["fixed"] is None for h in range(len(group_labels))):
+            return ("fixed at 0 in the first group, which sets the origin of the means (the other groups' means are "
+                    "differences from it)")
+        return MEANS_FIXED_EVERYWHERE
     return f"fixed at {value:g}"  # pragma: no cover - every fixed entry has one of the reasons above
 
 

@@ -528,9 +528,10 @@ def unsound_basis(steps, k: int):
 def spec_of_level(spec: Spec, classes: tuple[str, ...], exceptions) -> Spec:
     """The model of one level of the ladder: ``spec`` with the parameters of ``classes`` held equal across groups,
     less the exemptions among ``exceptions`` ('noninvariant' statements, parameters a partial search freed) that
-    concern those classes (an exemption applies from the level that holds its class equal)."""
+    concern those classes (an exemption applies from the level that holds its class equal).  A start on a factor
+    mean stands at the steps that fix the mean at 0 (``Spec.ladder_step``): it applies from the scalar step on."""
     return replace(spec, invariant=classes, noninvariant=tuple(r for r in exceptions
-                                                              if _exempts_a_class_of(r, classes)))
+                                                              if _exempts_a_class_of(r, classes)), ladder_step=True)
 
 
 def rejected_by_test(test: DifferenceTest, alpha: float) -> bool:
