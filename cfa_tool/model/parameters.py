@@ -37,8 +37,8 @@ from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.options import Option
 from cfa_tool.language.checks import all_refs, exogenous_factors
 from cfa_tool.language.names import reference_text, written_name
-from cfa_tool.language.spec import (GROUP_EQUALITY_WORDS, INVARIANCE_CLASSES, ParameterRef, Spec, equality_words,
-                                    fix_sets_scale)
+from cfa_tool.language.spec import (GROUP_EQUALITY_WORDS, INVARIANCE_CLASSES, INVARIANCE_LEVELS, ParameterRef, Spec,
+                                    equality_words, fix_sets_scale)
 
 MATRIX_CODES = {"L": 0, "B": 1, "P": 2, "T": 3, "N": 4, "M": 5, "K": 6}
 
@@ -375,6 +375,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                     entries[key].update(fixed=entries[first]["fixed"], origin="user")
                     tied_to[key] = first
                     tied_kinds.add("mean")
+        _check_group_fixes_held_equal(spec, fixed_by, entries, tied_across_groups, G)
         _check_equalities_hold(spec, tied_kinds)
 
     group_fixed: dict[tuple, tuple] = {}  # root of a set of tied entries -> the fixed entry among them
@@ -644,6 +645,42 @@ def _check_equalities_hold(spec: Spec, tied_kinds: set[str]) -> None:
                    f"scale or a 'noninvariant' exemption)")
         raise _fail(spec, f"'equal across groups: {words.text}' holds nothing equal: {why}; remove it or free "
                           f"what it should hold", words)
+
+
+def _check_group_fixes_held_equal(spec: Spec, fixed_by: dict, entries: dict, tied_across_groups, G: int) -> None:
+    """A parameter fixed in one group ('in group north: fix loading(f, b) = .5') while its class is held equal across
+    groups ('invariance metric', 'equal across groups: loadings', a step of the invariance ladder) would leave the
+    other groups' parameter free, or held equal among themselves only: the model fitted would not hold the class
+    equal as its level says.  An error naming the statement, what holds the class equal and the two ways out (the
+    'fix' for every group, or the parameter exempted by 'noninvariant'), unless every group has it fixed alike."""
+    for key, ref in fixed_by.items():
+        if ref.group is None or not tied_across_groups(key[1:]):
+            continue
+        value = entries[key]["fixed"]
+        if all(entries[(h, *key[1:])]["fixed"] == value for h in range(G)):
+            continue
+        kind = "threshold" if ref.kind == "threshold" else _entry_kind(entries[key])
+        held = next(c for c, kinds in INVARIANCE_CLASSES.items() if kind in kinds)
+        words = equality_words([held])[0]
+        level = next(name for name, classes in INVARIANCE_LEVELS.items() if held in classes)
+        stated = next((n for n in spec.equal_across_groups if GROUP_EQUALITY_WORDS[n.text] == held), None)
+        if spec.ladder_step:
+            says = f"the invariance ladder holds the {words} equal across groups from its {level} step on"
+            claim = "the models from that step on would not be the invariance the ladder reports"
+        elif stated is not None:
+            says = f"'equal across groups: {stated.text}' (line {stated.location.line}) holds them equal across groups"
+            claim = "the model would not hold them equal as it says"
+        else:
+            where = spec.equalities_location
+            says = (f"'invariance {spec.invariance_level}'" + (f" (line {where.line})" if where is not None else "")
+                    + f" holds the {words} equal across groups")
+            claim = f"the model would not be the {spec.invariance_level} invariance it is said to be"
+        plain = replace(ref, group=None)
+        raise _fail(spec, f"{ref} is fixed at {value:g} in that group alone, but {says}: the other groups' {plain} "
+                          f"would be left free, and {claim}; "
+                          f"fix it in every group (the 'fix' statement without 'in group') to hold it "
+                          f"equal at {value:g}, or exempt it ('noninvariant {plain}') so that it may differ across "
+                          f"groups and the report names it", ref)
 
 
 def _invariant_kinds(spec: Spec) -> set[str]:
