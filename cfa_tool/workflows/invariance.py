@@ -103,9 +103,7 @@ class ScoreTests(Choice):
     #: a robust or design-based test, and ordinal items: the score statistic over the robust (sandwich) variance of
     #: the score (Satorra 1989), chi-square(1) without normality
     ROBUST = ("robust", "robust", "robust score tests (the generalized score test of Satorra 1989), which do not "
-                                  "assume normal data (with full-information ML and rows with gaps they are built on "
-                                  "the expected information, which assumes answers missing completely at random)",
-              False)
+                                  "assume normal data", False)
 
 
 @dataclass(frozen=True)
@@ -806,13 +804,19 @@ def robust_score_tests(found: ModificationIndices, model, theta: np.ndarray, lik
     sampling design: Satorra's (1989) generalized score test, the score statistic over the robust (sandwich)
     variance of the score instead of its normal-theory variance.  For a constraint gamma (a group's deviation from
     the common value) with information A and meat B of the model enlarged by gamma (both at the restricted
-    estimates), the efficient score is s_gamma - A_gt A_tt^-1 s_theta; its normal-theory variance is
-    h = A_gg - A_gt A_tt^-1 A_tg (the denominator of the normal-theory statistic; Sorbom 1989) and its robust
-    variance L B L', L = (-A_gt A_tt^-1, 1).  So the robust statistic is the normal-theory one times h / (L B L')
-    (times 2 for rows with gaps, whose meat is twice the information under normality; Yuan & Bentler 2000).  A and
+    estimates), the efficient score is s_gamma - A_gt A_tt^-1 s_theta (s_gamma itself at the estimates, where
+    s_theta = 0); its robust variance is L B L', L = (-A_gt A_tt^-1, 1).  The normal-theory statistic divides the
+    same score by h = A_gg - A_gt A_tt^-1 A_tg of its own information (Sorbom 1989), so the robust statistic is the
+    normal-theory one times h / (L B L'), h from the index's information and L from the bread (times 2 for rows
+    with gaps, whose meat is twice the information under normality; Yuan & Bentler 2000).  With complete rows A and
     B are those of inference.robust (Satorra & Bentler 1994: A = Delta' V Delta, B = Delta' V Gamma V Delta, over
-    the groups' stacked moments under their design) and of inference.robust_missing (rows with gaps: the rows'
-    scores in the saturated moments).  The expected changes stay as they are."""
+    the groups' stacked moments under their design), A both the index's information and the bread.  With rows with
+    gaps (full-information ML) B is the meat of the rows' scores in the saturated moments (inference.robust_missing)
+    and the bread is the observed information in the moments (MissingDataLikelihood.moment_hessian), as the robust
+    standard errors and the Yuan-Bentler test take the observed information (valid when answers are missing at
+    random, not only completely at random; Kenward & Molenberghs 1998), while h is that of the index's own
+    information (the patterns' expected information, MissingDataLikelihood.group_parts).  The expected changes stay
+    as they are."""
     if not len(found):
         return found
     index = found.index * _score_variance_ratio(model, theta, likelihood, found)
@@ -832,7 +836,8 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
     q, k = len(theta), len(found)
     I, J = vech_indices(model.p)
     complete = not hasattr(likelihood, "patterns")
-    bread = np.zeros((q + k, q + k))
+    information = np.zeros((q + k, q + k))  # the index's own: h comes from it
+    bread = information if complete else np.zeros((q + k, q + k))  # L comes from it
     meat = np.zeros((q + k, q + k))
     weighted = []
     omega = moments_meat(likelihood, likelihood.means) if complete else None
@@ -844,35 +849,31 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
             delta, V = _group_blocks(model, theta, likelihood, g)
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T]) if likelihood.means else c_sigma[:, I, J].T
         else:  # means, vech: the layout of inference.robust_missing
-            from cfa_tool.data.patterns import embedded_inverse
-            from cfa_tool.estimation.fiml import MissingParts, _trace_weights
             from cfa_tool.inference.design import design_meat
             from cfa_tool.inference.robust_missing import _model_directions, _moment_directions, moment_scores
 
             delta = _model_directions(likelihood, theta, g)
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T])
-            data, sigma = likelihood.patterns[g], mats.implied_covariance()
-            scores = moment_scores(data, mats.implied_mean(), sigma)
-            # the expected information in the moments, the missing-data patterns held fixed (valid when answers are
-            # missing completely at random; the robust standard errors take the observed one since session 12:
-            # aligning these score tests with them is left for the next round)
-            A, _ = embedded_inverse(sigma, data.observed)
-            w_rows = data.counts / data.counts.sum()
-            V = MissingParts(np.zeros((model.p, model.p)), np.zeros(model.p), _trace_weights(A, A, w_rows),
-                             np.tensordot(w_rows, A, axes=1)).information(*_moment_directions(model.p))
+            directions = _moment_directions(model.p)
+            V = likelihood.group_parts(theta, g).information(*directions)  # the patterns' expected information
+            observed = likelihood.moment_hessian(theta, g, *directions)
         X = np.zeros((delta.shape[0], q + k))
         X[:, :q] = delta
         X[:, q + mine] = extra
         VX = V @ X
-        bread += w * X.T @ VX
+        information += w * X.T @ VX
         if complete:
             weighted.append(w * VX)
         else:
+            bread += w * X.T @ observed @ X
+            scores = moment_scores(likelihood.patterns[g], mats.implied_mean(), mats.implied_covariance())
             meat += w * X.T @ design_meat(scores, likelihood.groups[g].design) @ X
     if complete:
         meat = omega.middle(weighted)
-    K = bread[q:, :q] @ scaled_inverse(bread[:q, :q])  # A_gt A_tt^-1, one row per constraint
-    normal = np.diag(bread)[q:] - np.einsum("cq,cq->c", K, bread[q:, :q])
+    K = information[q:, :q] @ scaled_inverse(information[:q, :q])  # A_gt A_tt^-1 of the index's information
+    normal = np.diag(information)[q:] - np.einsum("cq,cq->c", K, information[q:, :q])
+    if not complete:  # L from the observed information
+        K = bread[q:, :q] @ scaled_inverse(bread[:q, :q])
     robust = (np.diag(meat)[q:] - 2.0 * np.einsum("cq,cq->c", K, meat[q:, :q])
               + np.einsum("cq,cq->c", K @ meat[:q, :q], K))
     ratio = normal / np.where(robust > 0, robust, np.nan)
