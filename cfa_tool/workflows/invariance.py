@@ -41,7 +41,7 @@ from cfa_tool.data.sample_design import check_design, design_columns, design_sum
 from cfa_tool.numerics.threads import blas_threads_for
 from cfa_tool.workflows.nesting import DifferenceTest, scaled_difference
 from cfa_tool.views import Presentable
-from cfa_tool.method import ORDINAL_FIT_CHANGE, Choice, DecisionRule  # (declared with the other choices; imported from here too)
+from cfa_tool.method import ORDINAL_FIT_CHANGE, Choice, DecisionRule, MissingData  # (declared with the other choices; imported from here too)
 
 LEVELS: tuple[tuple[str, tuple[str, ...], tuple[str, ...]], ...] = (
     # level, classes held equal, parameter kinds the step adds
@@ -242,6 +242,8 @@ class InvarianceResult(Presentable):
     data_problems: tuple = ()
     #: why the first group is the reference group (data.groups.ReferenceRule: chosen, or the default rule)
     reference_rule: object = None
+    #: rows with gaps were fitted by full-information ML (what the normal-theory score tests then assume)
+    gaps_by_full_information: bool = False
 
     @property
     def score_tests(self) -> ScoreTests:
@@ -249,6 +251,15 @@ class InvarianceResult(Presentable):
         and for ordinal items, normal-theory otherwise."""
         first = self.steps[0].result
         return ScoreTests.ROBUST if first.method.ordinal or first.robust is not None else ScoreTests.NORMAL
+
+    @property
+    def score_tests_assume_mcar(self) -> bool:
+        """Whether the score tests rest on the patterns' expected information: normal-theory ones with
+        full-information ML and rows with gaps (the expected information with the patterns held fixed is the limit
+        of the observed one only when answers are missing completely at random; Kenward & Molenberghs 1998, recalled
+        from memory as in inference.robust_missing).  The
+        robust ones take the observed information (:func:`robust_score_tests`)."""
+        return self.score_tests is ScoreTests.NORMAL and self.gaps_by_full_information
 
     def to_dict(self) -> dict:
         data = self._data_dict()
@@ -263,7 +274,8 @@ class InvarianceResult(Presentable):
             "alpha": self.alpha,
             "decision_rule": {"name": self.rule.value, "description": self.rule.description},
             # which score tests the steps' constraint tests (and the partial search's stop rule) are
-            "score_tests": {"name": self.score_tests.value, "description": self.score_tests.phrase},
+            "score_tests": {"name": self.score_tests.value, "description": self.score_tests.phrase,
+                            "assume_missing_completely_at_random": self.score_tests_assume_mcar},
             # ordinal fits: the steps' delta_cfi and delta_rmsea are null, and why (as compare says it)
             "fit_index_changes_left_out": ORDINAL_FIT_CHANGE if self.steps[0].result.method.ordinal else None,
             "steps": [s.to_dict() for s in self.steps],
@@ -342,6 +354,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
         read_notes = list(read_notes) + design_notes
         if not ordinal_items:  # ordinal items always get sandwich errors and adjusted tests
             fit_options = design_test(fit_options, design)
+    gaps = False  # rows with gaps fitted by full-information ML
     if ordinal_items:
         pairwise = check_ordinal_options(fit_options)
         if rule is not DecisionRule.DIFFERENCE_TEST:
@@ -355,6 +368,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     else:
         # rows with gaps are kept (full-information ML), as 'fit' keeps them, unless listwise is asked for
         fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
+        gaps = (fit_options.missing is MissingData.FULL_INFORMATION
+                and bool(frame[list(spec.observed_names)].isna().to_numpy().any()))
         groups, notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design=design)
         notes = list(missing_notes) + few_category_notes(frame, spec.observed_names) + list(read_notes) + list(notes)
         ladder = NormalLadder(design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
@@ -398,7 +413,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
                                         data_cautions + tuple(left_out) + (stopped,), rule,
                                         notes=tuple(notes) + tuple(left_notes), data_problems=found,
-                                        reference_rule=reference)
+                                        reference_rule=reference, gaps_by_full_information=gaps)
             with threads:
                 test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
             # an inadmissible solution (negative variances, ...) cannot show that invariance holds, whatever its fit;
@@ -494,7 +509,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     small = tuple(f"Group {p.group}: {p.line()}" for p in steps[0].result.problems if p.kind is ProblemKind.SMALL_GROUP)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
                             tuple(impossible) + data_cautions + small + tuple(warnings), rule,
-                            differences, latent_note, not_estimated, tuple(notes), found, reference)
+                            differences, latent_note, not_estimated, tuple(notes), found, reference, gaps)
 
 
 #: the keywords of :func:`invariance` besides the fit options it passes on (an unknown keyword's near names,

@@ -466,3 +466,21 @@ def test_the_search_frees_by_robust_score_tests_and_the_reports_say_which():
     text = " ".join(robust.summary(width=200).split())
     assert "Score tests: robust score tests (the generalized score test of Satorra 1989)" in text
     assert "Score tests: normal-theory score tests (Sorbom 1989)" in " ".join(normal.summary(width=200).split())
+
+
+def test_the_normal_theory_score_tests_with_gaps_say_what_they_assume():
+    """With rows with gaps the normal-theory score tests of the search rest on the patterns' expected information
+    (valid under MCAR): the report and the JSON say so; the robust ones, on the observed information, do not claim
+    it, nor do normal-theory ones on complete rows."""
+    from cfa_tool.reporting.workflow_tables import invariance_report
+
+    said = "the normal-theory score tests rest on the expected information, which holds when answers are missing " \
+           "completely at random"
+    gaps = invariance(THREE_FACTORS, _with_gaps(), "school", partial="auto")
+    assert gaps.score_tests_assume_mcar and gaps.to_dict()["score_tests"]["assume_missing_completely_at_random"]
+    assert said in " ".join(str(invariance_report(gaps)).split())
+    robust = invariance(THREE_FACTORS, _with_gaps(), "school", partial="auto", test="robust")
+    complete = invariance(THREE_FACTORS, holzinger_swineford(), "school", partial="auto", missing="full-information")
+    for result in (robust, complete):
+        assert not result.score_tests_assume_mcar
+        assert said not in " ".join(str(invariance_report(result)).split())
