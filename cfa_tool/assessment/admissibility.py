@@ -25,6 +25,7 @@ from cfa_tool.model.implied import ModelMatrices
 from cfa_tool.model.parameters import ParameterTable
 from cfa_tool.model.saved_estimates import AGAIN, SavedRow
 from cfa_tool.numerics.linalg import cholesky_log_det
+from cfa_tool.options import Option
 
 
 class ProblemKind(enum.Enum):
@@ -158,7 +159,7 @@ def sample_size_problems(rows: Sequence[float], free: Sequence[int], groups: Seq
             f"answers" + ("" if several else ", and a CFI of 1 or a TLI above 1 then says little about fit")
             + f" (fewer rows than parameters; {ROWS_RULE}).",
             "gather more rows for this group, join it with a similar group by recoding the group column, or leave it "
-            "out with a row filter (--keep)." if several else
+            f"out with a row filter ({Option.KEEP})." if several else
             "gather more rows, or fit a smaller model (fewer items or factors); do not judge this fit against the guide "
             "values of the fit indices.", label))
     if not noted:

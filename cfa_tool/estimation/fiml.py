@@ -165,6 +165,17 @@ class MissingDataLikelihood:
         _, A, w, _, M, _, mean_gradient = state
         return MissingParts(M, mean_gradient, _trace_weights(A, A, w), np.tensordot(w, A, axes=1))
 
+    def moment_hessian(self, theta: np.ndarray, g: int, d_sigma: np.ndarray, d_mu: np.ndarray) -> np.ndarray | None:
+        """Group g's observed information in directions (``d_sigma``, ``d_mu``) linear in the moments, at the model's
+        moments at theta: :func:`moment_hessian` with the patterns weighed n_k / n_obs, as :meth:`observed_hessian`
+        and :meth:`group_parts` weigh them (n_obs rounds the sum of sampling weights); None if some Sigma_oo is not
+        positive definite.  The first-order terms of :meth:`observed_hessian`, here in the moments."""
+        state = self._pattern_state(theta, g)
+        if state is None:
+            return None
+        _, A, w, ATA, _, Ad, _ = state
+        return first_order_hessian(A, w, ATA, Ad, d_sigma, d_mu)
+
     def evaluate(self, theta: np.ndarray) -> Evaluation | None:
         """Value, gradient and patterns-fixed information summed over groups (None outside the region)."""
         q = len(theta)

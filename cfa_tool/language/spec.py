@@ -282,6 +282,10 @@ class Spec:
     equalities_location: Location | None = field(default=None, compare=False)
     answers: tuple[AnswerCoding, ...] = ()  # 'answers' statements: what answers recorded as words mean
     exploratory: tuple[ExploratoryBlock, ...] = ()  # their factors are in ``factors`` too, with their identification
+    # one step of the invariance ladder (workflows.invariance.spec_of_level): a start on a factor mean fixed at 0 at
+    # this step applies at the steps that free it (and gives a group's mean in a power study's population), so it is
+    # not refused here as it is in a plain fit
+    ladder_step: bool = False
     lines: tuple[str, ...] = field(default=(), repr=False, compare=False)
 
     def __hash__(self) -> int:

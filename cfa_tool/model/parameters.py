@@ -37,8 +37,8 @@ from cfa_tool.errors import ModelError, OptionError
 from cfa_tool.options import Option
 from cfa_tool.language.checks import all_refs, exogenous_factors
 from cfa_tool.language.names import reference_text, written_name
-from cfa_tool.language.spec import (GROUP_EQUALITY_WORDS, INVARIANCE_CLASSES, ParameterRef, Spec, equality_words,
-                                    fix_sets_scale)
+from cfa_tool.language.spec import (GROUP_EQUALITY_WORDS, INVARIANCE_CLASSES, INVARIANCE_LEVELS, ParameterRef, Spec,
+                                    equality_words, fix_sets_scale)
 
 MATRIX_CODES = {"L": 0, "B": 1, "P": 2, "T": 3, "N": 4, "M": 5, "K": 6}
 
@@ -375,6 +375,7 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
                     entries[key].update(fixed=entries[first]["fixed"], origin="user")
                     tied_to[key] = first
                     tied_kinds.add("mean")
+        _check_group_fixes_held_equal(spec, fixed_by, entries, tied_across_groups, G)
         _check_equalities_hold(spec, tied_kinds)
 
     group_fixed: dict[tuple, tuple] = {}  # root of a set of tied entries -> the fixed entry among them
@@ -436,10 +437,15 @@ def build_parameter_table(spec: Spec, groups: tuple[str, ...] | None = None, mea
         # the tie is named where there is one (a group's mean held equal to the first group's names the tie)
         at = next((i for i, k in enumerate(keys) if k in tied_to), 0)
         first_key, why = keys[at], reasons[at]
-        if multi and ref.group is None:
+        # a factor mean fixed at 0 in every group for want of equal intercepts: its reason says 'every group' itself
+        everywhere = (multi and ref.kind == "mean" and first_key not in tied_to and first_key not in fixed_by
+                      and all(entries[(h, *ref.key())]["fixed"] is not None for h in range(G)))
+        if multi and ref.group is None and not everywhere:
             why = f"fixed in every group (in group {group_labels[first_key[0]]}: {why})"
+        how = (" (the invariance command reads it at the step that holds the intercepts equal)"
+               if everywhere and word == "a start value" else "")
         return _fail(spec, f"{ref} is {why}, so {word} on it has no effect; remove the {word.removeprefix('a ')}"
-                           f"{' or the tie' if first_key in tied_to else ''}", ref)
+                           f"{' or the tie' if first_key in tied_to else ''}{how}", ref)
 
     for setting in spec.starts:
         for ref in setting.refs:
@@ -558,13 +564,20 @@ def _start_values(spec: Spec, groups_of, free_index, multi: bool) -> dict[int, f
     return {index: value for index, (value, _, _) in starts.items()}
 
 
+#: why a factor mean with groups is fixed at 0 in every group (a start on it cannot apply in a plain fit)
+MEANS_FIXED_EVERYWHERE = ("fixed at 0 in every group: a factor's mean is estimated only in the groups after the "
+                          "first, and only when the loadings and intercepts of its indicators are held equal across "
+                          "groups ('invariance scalar'), which this model does not do")
+
+
 def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by: dict, tied_to: dict, multi: bool,
                   group_labels: tuple[str, ...]) -> str | None:
     """Why the entry ``key`` (group, kind, names) is not a free parameter, in words that follow 'PARAMETER is'
     ('fixed at 1 by the 'fix' statement on line 4', 'fixed through its tie to loading(f, a) ...'), or None when
-    it is free.  With groups, a factor mean that the model fixes at 0 only because nothing identifies it counts as
-    free: the invariance ladder frees it at the step that holds its indicators' intercepts equal, and the
-    population of a power study with groups reads each group's mean from 'start' (workflows.group_population)."""
+    it is free.  With groups, a factor mean that the model fixes at 0 counts as free at a step of the invariance
+    ladder (``Spec.ladder_step``): the ladder frees it at the step that holds its indicators' intercepts equal, and
+    the population of a power study with groups reads each group's mean from 'start' (workflows.group_population);
+    in a plain fit it is fixed, and a start on it cannot apply."""
     e = entries[key]
     g, kind, names = key
     if key in effects:
@@ -597,9 +610,16 @@ def _why_not_free(spec: Spec, key: tuple, entries: dict, effects: dict, fixed_by
         return (f"fixed at {value:g} to give the latent response of the ordinal item '{names[0]}' its "
                 f"{'origin' if kind == 'intercept' else 'unit'} (Wu & Estabrook 2016)")
     if kind == "mean":
-        # with groups, a start on a factor mean fixed at 0 can apply at another step of the invariance ladder, and
-        # in a population with groups (power of the invariance tests) it gives the group's mean
-        return None if multi else "fixed at 0: with one group a factor's mean is 0, which sets the origin of its scale"
+        if not multi:
+            return "fixed at 0: with one group a factor's mean is 0, which sets the origin of its scale"
+        if spec.ladder_step:
+            # a start on a factor mean fixed at 0 applies at a later step of the invariance ladder, and in a
+            # population with groups (power of the invariance tests) it gives the group's mean
+            return None
+        if any(entries[(h, kind, names)]["fixed"] is None for h in range(len(group_labels))):
+            return ("fixed at 0 in the first group, which sets the origin of the means (the other groups' means are "
+                    "differences from it)")
+        return MEANS_FIXED_EVERYWHERE
     return f"fixed at {value:g}"  # pragma: no cover - every fixed entry has one of the reasons above
 
 
@@ -625,6 +645,42 @@ def _check_equalities_hold(spec: Spec, tied_kinds: set[str]) -> None:
                    f"scale or a 'noninvariant' exemption)")
         raise _fail(spec, f"'equal across groups: {words.text}' holds nothing equal: {why}; remove it or free "
                           f"what it should hold", words)
+
+
+def _check_group_fixes_held_equal(spec: Spec, fixed_by: dict, entries: dict, tied_across_groups, G: int) -> None:
+    """A parameter fixed in one group ('in group north: fix loading(f, b) = .5') while its class is held equal across
+    groups ('invariance metric', 'equal across groups: loadings', a step of the invariance ladder) would leave the
+    other groups' parameter free, or held equal among themselves only: the model fitted would not hold the class
+    equal as its level says.  An error naming the statement, what holds the class equal and the two ways out (the
+    'fix' for every group, or the parameter exempted by 'noninvariant'), unless every group has it fixed alike."""
+    for key, ref in fixed_by.items():
+        if ref.group is None or not tied_across_groups(key[1:]):
+            continue
+        value = entries[key]["fixed"]
+        if all(entries[(h, *key[1:])]["fixed"] == value for h in range(G)):
+            continue
+        kind = "threshold" if ref.kind == "threshold" else _entry_kind(entries[key])
+        held = next(c for c, kinds in INVARIANCE_CLASSES.items() if kind in kinds)
+        words = equality_words([held])[0]
+        level = next(name for name, classes in INVARIANCE_LEVELS.items() if held in classes)
+        stated = next((n for n in spec.equal_across_groups if GROUP_EQUALITY_WORDS[n.text] == held), None)
+        if spec.ladder_step:
+            says = f"the invariance ladder holds the {words} equal across groups from its {level} step on"
+            claim = "the models from that step on would not be the invariance the ladder reports"
+        elif stated is not None:
+            says = f"'equal across groups: {stated.text}' (line {stated.location.line}) holds them equal across groups"
+            claim = "the model would not hold them equal as it says"
+        else:
+            where = spec.equalities_location
+            says = (f"'invariance {spec.invariance_level}'" + (f" (line {where.line})" if where is not None else "")
+                    + f" holds the {words} equal across groups")
+            claim = f"the model would not be the {spec.invariance_level} invariance it is said to be"
+        plain = replace(ref, group=None)
+        raise _fail(spec, f"{ref} is fixed at {value:g} in that group alone, but {says}: the other groups' {plain} "
+                          f"would be left free, and {claim}; "
+                          f"fix it in every group (the 'fix' statement without 'in group') to hold it "
+                          f"equal at {value:g}, or exempt it ('noninvariant {plain}') so that it may differ across "
+                          f"groups and the report names it", ref)
 
 
 def _invariant_kinds(spec: Spec) -> set[str]:

@@ -478,6 +478,17 @@ def _declared_note(steps) -> str:
             f"steps marked partial hold every other equality of their level.")
 
 
+def _score_tests_mcar_note(result) -> list[str]:
+    """What the normal-theory score tests of the steps assume with full-information ML and rows with gaps, when the
+    report shows some (InvarianceResult.score_tests_assume_mcar)."""
+    shown = result.freed or any(not s.holds and s.culprits for s in result.steps)
+    if not (shown and result.score_tests_assume_mcar):
+        return []
+    return [f"With rows with gaps, the normal-theory score tests rest on the expected information, which holds when "
+            f"answers are missing completely at random (Kenward & Molenberghs 1998); robust score tests "
+            f"({Option.ROBUST}) take the observed information, which holds when they are missing at random."]
+
+
 def invariance_report(result) -> Report:
     from cfa_tool.workflows.invariance import STOP_HOLDS, unsound_basis  # the ladder's own, loaded with it
 
@@ -561,6 +572,7 @@ def invariance_report(result) -> Report:
         columns = [("Level", "l"), ("Parameter", "l")] + ([("Pointed to by group", "l")] if many else []) + [
             ("Score test", "r")]
         note = (f"Score tests: {result.score_tests.phrase}, each compared with chi-square(1) at the steps' level."
+
                 + (" Each freed parameter is freed in every group: its equality across the groups is dropped, so it "
                    "may differ between any of them; 'Pointed to by group' names the group whose constraint had the "
                    "largest score test." if many else ""))
@@ -569,6 +581,7 @@ def invariance_report(result) -> Report:
     declared = _declared_note(result.steps)
     if declared:
         notes.append(declared)
+    notes.extend(_score_tests_mcar_note(result))
     for step in result.steps:
         if step.stopped and (step.partial or step.stopped != STOP_HOLDS):
             freed_words = f"freed {len(step.freed)} parameter{'s' if len(step.freed) != 1 else ''} and " \
@@ -999,7 +1012,7 @@ def not_carried_line(not_carried, power: bool = True) -> list[str]:
     if power:
         return [f"{said}, so the figures are those of such a sample (with a design effect or missing answers, power "
                 f"is lower)."]
-    return [f"{said} (--missing removes a share of the answers completely at random)."]
+    return [f"{said} ({Option.SIMULATED_MISSING} removes a share of the answers completely at random)."]
 
 
 def few_replications(replications: int) -> tuple[str, ...]:
@@ -1188,7 +1201,7 @@ def check_report(found) -> Report:
     lines = found.summary().splitlines()
     rows = [[name, "100%" if share >= 1 else _percent_below_all(share)] for name, share in found.coverage.items()]
     counted = ("A value that looks like no answer (named above) counts as an answer here, as the fit would count it; "
-               "marked as missing (--missing-codes, or an empty cell), it would not."
+               f"marked as missing ({Option.MISSING_CODES}, or an empty cell), it would not."
                if any(p.kind is ProblemKind.VALUES_NOT_ANSWERS for p in found.problems) else None)
     table = _table("coverage", "Share of rows answering each model variable", [("Variable", "l"), ("Answered", "r")],
                    rows, counted, values=(["Variable", "Share answering"], [[k, v] for k, v in found.coverage.items()]))

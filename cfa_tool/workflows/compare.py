@@ -21,7 +21,7 @@ from cfa_tool.data.labels import label_notes
 from cfa_tool.data.matching import check_columns
 from cfa_tool.data.moments import row_numbers
 from cfa_tool.data.odd_values import odd_values
-from cfa_tool.data.sample_design import check_design, design_columns, design_summary
+from cfa_tool.data.sample_design import check_design, design_columns, design_summary, design_weights
 from cfa_tool.data.summary_stats import read_summary_file
 from cfa_tool.errors import EstimationError, NotIdentified, OptionError, estimation_of
 from cfa_tool.options import Option, group_column, own_keywords
@@ -146,7 +146,11 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
     _, loaded, notes = read_inputs_with_notes(specs[0], data, sheet, missing_codes, keep,
                                               items={x for spec in specs for x in spec.observed_names}, names_row=names_row, first_data_row=first_data_row,
                                               rename=rename)
+    used = sorted({x for spec in specs for x in spec.observed_names})
+    if design is not None:  # the weights parsed once, as fit parses them, for the check and the groups weighted out
+        loaded = replace(loaded, weights=design_weights(loaded.frame, design, tuple(used), group, loaded.source))
     frame, source = loaded.frame, loaded.source
+    at = np.arange(len(frame))  # each compared row's place among the rows read, where its parsed weight is
     coded = set(specs[0].observed_names)  # items of the later models only, each once: their answer words as codes
     for spec in specs[1:]:
         check_columns(spec, list(frame.columns), source, loaded.sheet_hint())
@@ -154,12 +158,11 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
                                                 missing_codes=missing_codes_option(missing_codes))  # as fit reads them
         coded |= set(spec.observed_names)
         notes = list(notes) + coding_notes
-    used = sorted({x for spec in specs for x in spec.observed_names})
     without_group = 0
     if group is not None and group in frame.columns:  # rows without a group value: left out, and said
         has_group = frame[group].notna().to_numpy()
         without_group = int((~has_group).sum())
-        frame = frame.loc[has_group]
+        frame, at = frame.loc[has_group], at[has_group]
         notes = list(notes) + _no_group_notes(without_group, group)
     # values that look like no answers in any model's items, among the rows compared: first in the report, and
     # named first when a fit fails
@@ -177,14 +180,16 @@ def compare(models: list[str | Path | Spec], data: pd.DataFrame | str | Path, gr
             notes = list(missing_notes) + few_category_notes(frame, tuple(used)) + list(notes)
         if fit_options.missing is MissingData.FULL_INFORMATION or pairwise:  # the rows every model can use: some answers
             answers = [frame[list(spec.observed_names)].notna().to_numpy().any(axis=1) for spec in specs]
-            complete = frame.loc[np.logical_and.reduce(answers)]
+            kept = np.logical_and.reduce(answers)
         else:
-            complete = frame.dropna(subset=used)
+            kept = frame[used].notna().to_numpy().all(axis=1)
+        complete, at = frame.loc[kept], at[kept]
         dropped = len(loaded.frame) - len(complete) - without_group  # rows with missing answers (or none)
         if group is not None:
             notes = list(notes) + label_notes(complete, group)
         if design is not None:
-            complete, design_notes = check_design(complete, design, tuple(used), group, source)
+            complete, design_notes = check_design(complete, design, tuple(used), group, source,
+                                                  loaded.weights[at] if loaded.weights is not None else None)
             notes = list(notes) + design_notes
         if ordinal_items:
             found = _compare_ordinal(specs, names, complete, source, group, reference_group,

@@ -550,7 +550,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     chosen = _ordinal_methods(methods, chosen, standard_errors, "") if ordinal_items else \
         _with_factor_method(chosen, standard_errors)
     design = design_columns(weights, cluster, strata, weight_kind)
-    loaded = api.analysed_odd_values(loaded, spec, group)
+    # the weights parsed once, as fit parses them: for the fit, the groups weighted out and the rows scored from
+    loaded = api.with_design_weights(api.analysed_odd_values(loaded, spec, group), design, spec, group)
     with api.odd_values_named(loaded):  # values that look like no answers: named first when the fit fails
         result = api._fit_rows(spec, loaded, notes, group, reference_group, fit_options, ordinal, ordinal_estimator,
                                design, ids)  # the rows left out named by their ids, as fit names them
@@ -566,7 +567,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     chosen_by = api.reference_note(result, frame, group, reference_group)  # as fit names the reference group
     if chosen_by:
         result = replace(result, warnings=tuple(result.warnings) + tuple(chosen_by))
-    fitted_rows = _fitted_rows(frame, design, spec, group, source)
+    fitted_rows = _fitted_rows(frame, design, spec, group, source, loaded.weights)
     if ordinal_items:
         models, labels = _ordinal_models(spec, fitted_rows, source, ordinal_items, group, reference_group, result, design)
     else:
@@ -1303,9 +1304,10 @@ class _Fitted:
     theta: np.ndarray
 
 
-def _fitted_rows(frame, design, spec, group, source):
-    """The rows the fit used under a sampling design (rows of weight 0 left out), for the scoring model."""
-    return check_design(frame, design, spec.observed_names, group, source)[0] if design is not None else frame
+def _fitted_rows(frame, design, spec, group, source, weights=None):
+    """The rows the fit used under a sampling design (rows of weight 0 left out), for the scoring model; ``weights``:
+    those of ``frame``'s rows as parsed once (pipeline.inputs.with_design_weights)."""
+    return check_design(frame, design, spec.observed_names, group, source, weights)[0] if design is not None else frame
 
 
 def _linear_models(spec, frame, source, group, reference_group, fit_options, result, design=None):

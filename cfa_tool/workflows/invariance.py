@@ -24,7 +24,7 @@ from cfa_tool.options import own_keywords
 from cfa_tool.pipeline.inputs import (_described, analysed_odd_values, check_ordinal_options, choose_missing_handling, design_test, few_category_notes,
                                       make_options, moments_for, data_problems, ordinal_estimator_option,
                                       ordinal_groups, ordinal_items_of, read_inputs_with_notes, with_design,
-                                      with_missing_reading, with_rows_read)
+                                      with_design_weights, with_missing_reading, with_rows_read)
 from cfa_tool.assessment.admissibility import ProblemKind, group_size_problems
 from cfa_tool.assessment.fit_indices import FIT_GUIDES
 from cfa_tool.model.description import parameter_words
@@ -108,11 +108,6 @@ class ScoreTests(Choice):
     #: of the score (Satorra 1989), chi-square(1) without normality
     ROBUST = ("robust", "robust", "robust score tests (the generalized score test of Satorra 1989), which do not "
                                   "assume normal data", False)
-    #: the same with full-information ML and rows with gaps, whose score variance is built on the expected information
-    ROBUST_GAPS = ("robust, rows with gaps", "robust",
-                   "robust score tests (the generalized score test of Satorra 1989), which do not assume normal data; "
-                   "with full-information ML and rows with gaps they are built on the expected information, which "
-                   "assumes answers missing completely at random", False)
     #: ordinal items: the score statistic of the least-squares fit over its robust variance (Satorra 1989)
     LEAST_SQUARES = ("robust least squares", "robust",
                      "robust score tests of the least-squares fit on thresholds and polychoric correlations (the "
@@ -255,6 +250,8 @@ class InvarianceResult(Presentable):
     data_problems: tuple = ()
     #: why the first group is the reference group (data.groups.ReferenceRule: chosen, or the default rule)
     reference_rule: object = None
+    #: rows with gaps were fitted by full-information ML (what the normal-theory score tests then assume)
+    gaps_by_full_information: bool = False
 
     @property
     def score_tests(self) -> ScoreTests:
@@ -265,7 +262,16 @@ class InvarianceResult(Presentable):
             return ScoreTests.LEAST_SQUARES
         if first.robust is None:
             return ScoreTests.NORMAL
-        return ScoreTests.ROBUST_GAPS if first.method.missing is MissingData.FULL_INFORMATION else ScoreTests.ROBUST
+        return ScoreTests.ROBUST  # with full-information ML on the observed information, as the robust SEs
+
+    @property
+    def score_tests_assume_mcar(self) -> bool:
+        """Whether the score tests rest on the patterns' expected information: normal-theory ones with
+        full-information ML and rows with gaps (the expected information with the patterns held fixed is the limit
+        of the observed one only when answers are missing completely at random; Kenward & Molenberghs 1998, recalled
+        from memory as in inference.robust_missing).  The
+        robust ones take the observed information (:func:`robust_score_tests`)."""
+        return self.score_tests is ScoreTests.NORMAL and self.gaps_by_full_information
 
     def to_dict(self) -> dict:
         data = self._data_dict()
@@ -280,7 +286,8 @@ class InvarianceResult(Presentable):
             "alpha": self.alpha,
             "decision_rule": {"name": self.rule.value, "description": self.rule.description},
             # which score tests the steps' constraint tests (and the partial search's stop rule) are
-            "score_tests": {"name": self.score_tests.value, "description": self.score_tests.phrase},
+            "score_tests": {"name": self.score_tests.value, "description": self.score_tests.phrase,
+                            "assume_missing_completely_at_random": self.score_tests_assume_mcar},
             # ordinal fits: the steps' delta_cfi and delta_rmsea are null, and why (as compare says it)
             "fit_index_changes_left_out": ORDINAL_FIT_CHANGE if self.steps[0].result.method.ordinal else None,
             "steps": [s.to_dict() for s in self.steps],
@@ -344,7 +351,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                                                  rename=rename)
     frame, source = loaded.frame, loaded.source
     # values that look like no answers, among the rows with a group label: first among the cautions
-    analysed = analysed_odd_values(loaded, spec, group)
+    # the weights parsed once, as fit parses them, for the check of the design and the groups weighted out
+    analysed = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
     found = data_problems(analysed, spec, group, design)  # as fit gives them
     data_cautions = tuple(p.line() for p in found)
     if spec.invariant:
@@ -354,10 +362,11 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     ordinal_items = ordinal_items_of(spec, ordinal)
     ordinal_estimator = ordinal_estimator_option(ordinal_estimator, ordinal_items)
     if design is not None:
-        frame, design_notes = check_design(frame, design, spec.observed_names, group, source)
+        frame, design_notes = check_design(frame, design, spec.observed_names, group, source, analysed.weights)
         read_notes = list(read_notes) + design_notes
         if not ordinal_items:  # ordinal items always get sandwich errors and adjusted tests
             fit_options = design_test(fit_options, design)
+    gaps = False  # rows with gaps fitted by full-information ML
     if ordinal_items:
         pairwise = check_ordinal_options(fit_options)
         if rule is not DecisionRule.DIFFERENCE_TEST:
@@ -375,6 +384,8 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     else:
         # rows with gaps are kept (full-information ML), as 'fit' keeps them, unless listwise is asked for
         fit_options, missing_notes = choose_missing_handling(fit_options, frame, spec.observed_names, group)
+        gaps = (fit_options.missing is MissingData.FULL_INFORMATION
+                and bool(frame[list(spec.observed_names)].isna().to_numpy().any()))
         groups, notes = moments_for(spec, frame, source, group, reference_group, fit_options.missing, design=design)
         notes = list(missing_notes) + few_category_notes(frame, spec.observed_names) + list(read_notes) + list(notes)
         ladder = NormalLadder(design_summary(frame, design, [m for _, m in groups]) if design is not None else None)
@@ -418,7 +429,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
                 return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
                                         data_cautions + tuple(left_out) + (stopped,), rule,
                                         notes=tuple(notes) + tuple(left_notes), data_problems=found,
-                                        reference_rule=reference)
+                                        reference_rule=reference, gaps_by_full_information=gaps)
             with threads:
                 test = ladder.difference(est, result, previous, level, steps[-1].level) if previous is not None else None
             # an inadmissible solution (negative variances, ...) cannot show that invariance holds, whatever its fit;
@@ -516,7 +527,7 @@ def invariance(model: str | Path | Spec, data: pd.DataFrame | str | Path, group:
     small = tuple(f"Group {p.group}: {p.line()}" for p in steps[0].result.problems if p.kind is ProblemKind.SMALL_GROUP)
     return InvarianceResult(group, labels, tuple(steps), tuple(freed), alpha,
                             tuple(impossible) + data_cautions + small + tuple(warnings), rule,
-                            differences, latent_note, not_estimated, tuple(notes), found, reference)
+                            differences, latent_note, not_estimated, tuple(notes), found, reference, gaps)
 
 
 #: the keywords of :func:`invariance` besides the fit options it passes on (an unknown keyword's near names,
@@ -548,9 +559,10 @@ def unsound_basis(steps, k: int):
 def spec_of_level(spec: Spec, classes: tuple[str, ...], exceptions) -> Spec:
     """The model of one level of the ladder: ``spec`` with the parameters of ``classes`` held equal across groups,
     less the exemptions among ``exceptions`` ('noninvariant' statements, parameters a partial search freed) that
-    concern those classes (an exemption applies from the level that holds its class equal)."""
+    concern those classes (an exemption applies from the level that holds its class equal).  A start on a factor
+    mean stands at the steps that fix the mean at 0 (``Spec.ladder_step``): it applies from the scalar step on."""
     return replace(spec, invariant=classes, noninvariant=tuple(r for r in exceptions
-                                                              if _exempts_a_class_of(r, classes)))
+                                                              if _exempts_a_class_of(r, classes)), ladder_step=True)
 
 
 def rejected_by_test(test: DifferenceTest, alpha: float) -> bool:
@@ -825,13 +837,19 @@ def robust_score_tests(found: ModificationIndices, model, theta: np.ndarray, lik
     sampling design: Satorra's (1989) generalized score test, the score statistic over the robust (sandwich)
     variance of the score instead of its normal-theory variance.  For a constraint gamma (a group's deviation from
     the common value) with information A and meat B of the model enlarged by gamma (both at the restricted
-    estimates), the efficient score is s_gamma - A_gt A_tt^-1 s_theta; its normal-theory variance is
-    h = A_gg - A_gt A_tt^-1 A_tg (the denominator of the normal-theory statistic; Sörbom 1989) and its robust
-    variance L B L', L = (-A_gt A_tt^-1, 1).  So the robust statistic is the normal-theory one times h / (L B L')
-    (times 2 for rows with gaps, whose meat is twice the information under normality; Yuan & Bentler 2000).  A and
+    estimates), the efficient score is s_gamma - A_gt A_tt^-1 s_theta (s_gamma itself at the estimates, where
+    s_theta = 0); its robust variance is L B L', L = (-A_gt A_tt^-1, 1).  The normal-theory statistic divides the
+    same score by h = A_gg - A_gt A_tt^-1 A_tg of its own information (Sörbom 1989), so the robust statistic is the
+    normal-theory one times h / (L B L'), h from the index's information and L from the bread (times 2 for rows
+    with gaps, whose meat is twice the information under normality; Yuan & Bentler 2000).  With complete rows A and
     B are those of inference.robust (Satorra & Bentler 1994: A = Delta' V Delta, B = Delta' V Gamma V Delta, over
-    the groups' stacked moments under their design) and of inference.robust_missing (rows with gaps: the rows'
-    scores in the saturated moments).  The expected changes stay as they are."""
+    the groups' stacked moments under their design), A both the index's information and the bread.  With rows with
+    gaps (full-information ML) B is the meat of the rows' scores in the saturated moments (inference.robust_missing)
+    and the bread is the observed information in the moments (MissingDataLikelihood.moment_hessian), as the robust
+    standard errors and the Yuan-Bentler test take the observed information (valid when answers are missing at
+    random, not only completely at random; Kenward & Molenberghs 1998), while h is that of the index's own
+    information (the patterns' expected information, MissingDataLikelihood.group_parts).  The expected changes stay
+    as they are."""
     if not len(found):
         return found
     index = found.index * _score_variance_ratio(model, theta, likelihood, found)
@@ -851,7 +869,8 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
     q, k = len(theta), len(found)
     I, J = vech_indices(model.p)
     complete = not hasattr(likelihood, "patterns")
-    bread = np.zeros((q + k, q + k))
+    information = np.zeros((q + k, q + k))  # the index's own: h comes from it
+    bread = information if complete else np.zeros((q + k, q + k))  # L comes from it
     meat = np.zeros((q + k, q + k))
     weighted = []
     omega = moments_meat(likelihood, likelihood.means) if complete else None
@@ -863,35 +882,31 @@ def _score_variance_ratio(model, theta: np.ndarray, likelihood, found: Modificat
             delta, V = _group_blocks(model, theta, likelihood, g)
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T]) if likelihood.means else c_sigma[:, I, J].T
         else:  # means, vech: the layout of inference.robust_missing
-            from cfa_tool.data.patterns import embedded_inverse
-            from cfa_tool.estimation.fiml import MissingParts, _trace_weights
             from cfa_tool.inference.design import design_meat
             from cfa_tool.inference.robust_missing import _model_directions, _moment_directions, moment_scores
 
             delta = _model_directions(likelihood, theta, g)
             extra = np.vstack([c_mu.T, c_sigma[:, I, J].T])
-            data, sigma = likelihood.patterns[g], mats.implied_covariance()
-            scores = moment_scores(data, mats.implied_mean(), sigma)
-            # the expected information in the moments, the missing-data patterns held fixed (valid when answers are
-            # missing completely at random; the robust standard errors take the observed one since session 12:
-            # aligning these score tests with them is left for the next round)
-            A, _ = embedded_inverse(sigma, data.observed)
-            w_rows = data.counts / data.counts.sum()
-            V = MissingParts(np.zeros((model.p, model.p)), np.zeros(model.p), _trace_weights(A, A, w_rows),
-                             np.tensordot(w_rows, A, axes=1)).information(*_moment_directions(model.p))
+            directions = _moment_directions(model.p)
+            V = likelihood.group_parts(theta, g).information(*directions)  # the patterns' expected information
+            observed = likelihood.moment_hessian(theta, g, *directions)
         X = np.zeros((delta.shape[0], q + k))
         X[:, :q] = delta
         X[:, q + mine] = extra
         VX = V @ X
-        bread += w * X.T @ VX
+        information += w * X.T @ VX
         if complete:
             weighted.append(w * VX)
         else:
+            bread += w * X.T @ observed @ X
+            scores = moment_scores(likelihood.patterns[g], mats.implied_mean(), mats.implied_covariance())
             meat += w * X.T @ design_meat(scores, likelihood.groups[g].design) @ X
     if complete:
         meat = omega.middle(weighted)
-    K = bread[q:, :q] @ scaled_inverse(bread[:q, :q])  # A_gt A_tt^-1, one row per constraint
-    normal = np.diag(bread)[q:] - np.einsum("cq,cq->c", K, bread[q:, :q])
+    K = information[q:, :q] @ scaled_inverse(information[:q, :q])  # A_gt A_tt^-1 of the index's information
+    normal = np.diag(information)[q:] - np.einsum("cq,cq->c", K, information[q:, :q])
+    if not complete:  # L from the observed information
+        K = bread[q:, :q] @ scaled_inverse(bread[:q, :q])
     robust = (np.diag(meat)[q:] - 2.0 * np.einsum("cq,cq->c", K, meat[q:, :q])
               + np.einsum("cq,cq->c", K @ meat[:q, :q], K))
     ratio = normal / np.where(robust > 0, robust, np.nan)

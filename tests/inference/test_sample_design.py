@@ -470,12 +470,13 @@ def test_rows_and_groups_of_weight_zero_are_said_in_every_command(hs_data):
     assert any(p.kind is ProblemKind.GROUP_WEIGHTED_OUT for p in compared.problems)
 
 
-@pytest.mark.parametrize("command", ["fit", "check"])
+@pytest.mark.parametrize("command", ["fit", "check", "compare", "invariance", "scores"])
 def test_the_weights_are_parsed_once_for_the_design_and_the_caution_about_groups_weighted_out(hs_data, monkeypatch,
                                                                                                command):
     """The weights column was parsed by the check of the design and again by the caution about groups weighted out
-    (on another frame); both now read the weights parsed once.  The caution is the same as before: the group 'c' of
-    weight 0 is named first, its row count taken from the data (every third row)."""
+    (on another frame), and by compare, invariance and scores once more for their rows; all now read the weights
+    parsed once.  The caution is the same as before: the group 'c' of weight 0 is named first, its row count taken
+    from the data (every third row)."""
     from cfa_tool.data import sample_design
 
     k = np.arange(len(hs_data))
@@ -487,10 +488,17 @@ def test_the_weights_are_parsed_once_for_the_design_and_the_caution_about_groups
     monkeypatch.setattr(sample_design, "groups_weighted_out",
                         lambda frame, weights, group, w=None: unparsed.append(w is None) or weighted_out(frame, weights,
                                                                                                           group, w))
-    result = getattr(cfa_tool, command)(THREE_FACTORS, data, group="grp", weights="w")
+    if command == "compare":
+        result = cfa_tool.compare([THREE_FACTORS, THREE_FACTORS + "covary x1, x4\n"], data, group="grp", weights="w")
+    elif command == "invariance":
+        result = cfa_tool.invariance(THREE_FACTORS, data, "grp", weights="w", partial="none")
+    else:
+        result = getattr(cfa_tool, command)(THREE_FACTORS, data, group="grp", weights="w")
     assert len(parsed) == 1 and unparsed and not any(unparsed)
     said = f"very row of group 'c' ({int((k % 3 == 0).sum())} rows) of 'grp' has weight 0 in 'w'"
-    assert result.problems[0].kind is ProblemKind.GROUP_WEIGHTED_OUT and said in result.problems[0].explanation
+    problems = {"invariance": lambda r: r.data_problems, "scores": lambda r: r.fit.problems}.get(
+        command, lambda r: r.problems)(result)
+    assert problems[0].kind is ProblemKind.GROUP_WEIGHTED_OUT and said in problems[0].explanation
 
 
 def test_zero_weights_that_leave_one_group_are_named_in_the_error(hs_data):

@@ -46,6 +46,17 @@ REFUSED = [
     ("equal across groups: loadings, intercepts, factor means\nin group south: start mean(f) = 0.3\n", GROUPS, False,
      (4, 23), "mean(f) in group south is fixed through its tie to mean(f) in group north (held equal across groups "
               "(line 3)), which is fixed at 0"),
+    # a plain fit with groups: a factor mean is fixed at 0 in every group until the intercepts are held equal (the
+    # invariance ladder's steps read such a start later: test_a_start_on_a_factor_mean_is_not_refused_at_a_ladder_step)
+    ("start mean(f) = 0.3\n", GROUPS, False, (3, 7),
+     "mean(f) is fixed at 0 in every group: a factor's mean is estimated only in the groups after the first, and only "
+     "when the loadings and intercepts of its indicators are held equal across groups ('invariance scalar'), which "
+     "this model does not do, so a start value on it has no effect"),
+    ("invariance metric\nin group south: start mean(f) = 0.3\n", GROUPS, False, (4, 23),
+     "mean(f) in group south is fixed at 0 in every group: a factor's mean is estimated only"),
+    # the first group's mean sets the origin of the others, also when they are estimated
+    ("invariance scalar\nin group north: start mean(f) = 0.3\n", GROUPS, False, (4, 23),
+     "mean(f) in group north is fixed at 0 in the first group, which sets the origin of the means"),
     # a 'fix' for every group and a start or a bound for one group: checks.py compares statements of one scope only
     ("fix loading(f, b) = 0.5\nin group south: start loading(f, b) = 0.3\n", GROUPS, False, (4, 23),
      "loading(f, b) in group south is fixed at 0.5 by the 'fix' statement on line 3, so a start value on it has no "
@@ -89,10 +100,13 @@ def test_a_start_that_applies_in_some_group_stands(statements, groups, label, va
 
 
 @pytest.mark.parametrize("statement", ["start mean(f) = 0.3\n", "in group north: start mean(f) = 0.3\n"])
-def test_a_start_on_a_factor_mean_with_groups_is_not_refused(statement):
+def test_a_start_on_a_factor_mean_is_not_refused_at_a_ladder_step(statement):
     """The invariance ladder fits the model file's statements at every step, and a factor mean of a later group is
     fixed at 0 until the intercepts are held equal: its start applies from that step on, so no step refuses it; a
-    power study with groups reads each group's population mean, the first group's too, from such statements."""
-    table = build_parameter_table(parse_model(F + statement, "m.cfa"), GROUPS)
+    power study with groups reads each group's population mean, the first group's too, from such statements.  The
+    steps are the model as spec_of_level makes them; the same statements in a plain fit are refused (REFUSED)."""
+    from cfa_tool.workflows.invariance import spec_of_level
+
+    table = build_parameter_table(spec_of_level(parse_model(F + statement, "m.cfa"), (), ()), GROUPS)
     assert "mean(f) [south]" not in table.free_labels
     assert np.isnan(table.start).all()
