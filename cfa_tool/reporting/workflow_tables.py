@@ -730,15 +730,21 @@ def _rows_table(rep) -> ReportTable:
     """The rows of each sample (workflows.replication.SampleRows): read, analysed, with gaps, and how those were used
     (random halves: half A is the first replication's calibration sample)."""
     names = (("Half A", "Half B") if rep.split is not None else ("Calibration", "Validation"))
+    # with a row filter the rows the file holds come first and the rows read are those the filter kept (hostile
+    # tester s13: 'Rows read 123' where the file held 240 and the filter kept 123)
+    filtered = any(sample.in_file is not None for sample in rep.rows)
     rows, values, assumed = [], [], []
     for name, sample in zip(names, rep.rows):
         gaps = sample.with_gaps if sample.missing is not MissingData.LISTWISE else sample.left_out
         how, assumption = ROWS_WITH_GAPS_USED[sample.missing] if gaps else ("none had gaps", "")
         if assumption:
             assumed.append(f"{name}, answers {assumption}")
-        rows.append([name, str(sample.read), str(sample.analysed), str(gaps), how])
-        values.append([name, sample.read, sample.analysed, gaps, how])
-    columns = [("Sample", "l"), ("Rows read", "r"), ("Analysed", "r"), ("With gaps", "r"), ("Rows with gaps", "l")]
+        in_file = sample.in_file if sample.in_file is not None else sample.read
+        rows.append([name] + [str(in_file)] * filtered + [str(sample.read), str(sample.analysed), str(gaps), how])
+        values.append([name] + [in_file] * filtered + [sample.read, sample.analysed, gaps, how])
+    columns = ([("Sample", "l")] + [("Rows in the file", "r"), ("Kept by the row filter", "r")] * filtered
+               + [("Rows read", "r")] * (not filtered)
+               + [("Analysed", "r"), ("With gaps", "r"), ("Rows with gaps", "l")])
     note = (f"{names[0]}: {rep.calibration}; {names[1]}: {rep.validation}.  With gaps: rows missing an answer "
             f"on some model variable (under listwise deletion, those left out)."
             + (f"  What the handling of gaps assumes (Little & Rubin 2002): {'; '.join(assumed)}." if assumed else ""))

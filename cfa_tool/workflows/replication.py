@@ -99,10 +99,13 @@ class SampleRows:
     with_gaps: int
     left_out: int
     missing: MissingData
+    in_file: int | None = None  # the rows of the file before its row filters (None without a filter; set with the
+    # files' filters, :func:`replicate`): ``read`` is then the rows the filters kept
 
     def to_dict(self) -> dict:
         return {"rows_read": self.read, "rows_analysed": self.analysed, "analysed_with_gaps": self.with_gaps,
-                "rows_left_out": self.left_out, "rows_with_gaps_used_by": self.missing.value}
+                "rows_left_out": self.left_out, "rows_with_gaps_used_by": self.missing.value,
+                "rows_in_file": self.in_file}
 
 
 def sample_rows(moments, result: FitResult) -> SampleRows:
@@ -588,8 +591,9 @@ def replicate(model: str | Path | Spec, calibration: pd.DataFrame | str | Path, 
     # the two files' range restrictions read alike, and one left out as a repeat, without it
     found = tuple(dict.fromkeys(p for s, which in zip(read, ("calibration", "validation"))
                                 for p in data_problems(s, spec, where=f" on the {which} data ({s.source})")))
-    return replace(result, calibration_result=with_row_filters(result.calibration_result, read[0]),
-                   loose=with_row_filters(result.loose, read[1]), data_problems=found + left_out,
+    cal, loose = with_row_filters(result.calibration_result, read[0]), with_row_filters(result.loose, read[1])
+    rows = tuple(replace(r, in_file=fitted.data.rows_in_file) for r, fitted in zip(result.rows, (cal, loose)))
+    return replace(result, calibration_result=cal, loose=loose, rows=rows, data_problems=found + left_out,
                    notes=tuple(dict.fromkeys(n for file_notes in notes for n in file_notes)),
                    answer_coding=coding_record(spec))
 

@@ -49,12 +49,25 @@ def test_the_rows_of_each_sample_and_how_rows_with_gaps_were_used(samples):
     assert gaps >= 20  # the demo's own gaps and those written here
     assert "Validation, answers missing at random" in rows.note
     assert rep.entry()["validation"]["rows"] == {"rows_read": 240, "rows_analysed": 240, "analysed_with_gaps": gaps,
-                                                  "rows_left_out": 0, "rows_with_gaps_used_by": "full-information"}
+                                                  "rows_left_out": 0, "rows_with_gaps_used_by": "full-information",
+                                                  "rows_in_file": None}
     listwise = cfa_tool.replicate(MODEL, first, second, missing="listwise")
     values = next(t for t in report_of(listwise).tables if t.key == "replication_rows").values
     assert list(values[1]) == ["Validation", 240, 240 - gaps, gaps, "left out: listwise deletion"]
     assert f"{gaps} with missing answers excluded listwise, which assumes that answers are missing completely at random" \
         in report_of(listwise).paragraph
+
+
+def test_a_row_filter_on_both_files_shows_the_rows_in_each_file_and_those_kept(samples):
+    # hostile tester s13: with --keep the table said 'Rows read 123' where the file held 240 and the filter kept 123
+    first, second = samples
+    rep = cfa_tool.replicate(MODEL, first, second, keep=["district = north"])
+    kept = [int((pd.read_csv(path)["district"] == "north").sum()) for path in (first, second)]  # counted by pandas
+    rows = next(t for t in report_of(rep).tables if t.key == "replication_rows")
+    assert list(rows.value_columns[:4]) == ["Sample", "Rows in the file", "Kept by the row filter", "Analysed"]
+    assert [list(r)[:4] for r in rows.values] == [["Calibration", 240, kept[0], kept[0]],
+                                                  ["Validation", 240, kept[1], kept[1]]]
+    assert rep.entry()["calibration"]["rows"]["rows_in_file"] == 240
 
 
 def test_the_methods_paragraph_says_the_model_the_rows_the_test_and_the_index(samples):
