@@ -234,8 +234,26 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         if loaded.value_labels else ()
     frame = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)  # said where used (labels.label_notes)
     items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
+    found = odd_values(frame, spec.observed_names, row_numbers(frame), items.values)
     return spec, replace(loaded, frame=frame, cautions=cautions + beyond, items=items,
-                         odd_values=odd_values(frame, spec.observed_names, row_numbers(frame), items.values)), notes
+                         odd_values=found + summary_rows_kept(loaded, frame, spec.observed_names, found)), notes
+
+
+def summary_rows_kept(loaded: LoadedData, frame: pd.DataFrame, names: tuple[str, ...], found: tuple) -> tuple:
+    """Rows of totals or means of the whole file (data.odd_values, judged against every row read) that the row
+    filters kept in ``frame`` and the screening of the rows kept did not find (hostile trial s13, H5): a means row
+    labelled 'Average' passes 'district != south', and against the kept rows alone its values are not their means."""
+    from cfa_tool.data.odd_values import OddKind
+
+    if loaded.read_frame is None or not loaded.row_filters:
+        return ()
+    kept = set(row_numbers(frame).tolist())
+    said = {int(r) for o in found for r in o.rows}
+    whole = loaded.read_frame
+    if not all(name in whole.columns for name in names):
+        return ()
+    return tuple(o for o in odd_values(whole, names, row_numbers(whole))
+                 if o.kind in (OddKind.SUMS_ROW, OddKind.MEANS_ROW) and o.rows[0] in kept and o.rows[0] not in said)
 
 
 def rows_kept(loaded: LoadedData, filters) -> tuple[LoadedData, list[str]]:
