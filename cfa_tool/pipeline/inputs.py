@@ -591,7 +591,8 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
     odd = tuple(o for o in loaded.odd_values if not (o.kind is OddKind.MISSING_CODE and all(
         (v, column) in labelled for v, column in zip(o.values, o.columns))))
     return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
-        Problem(ProblemKind.VALUES_NOT_ANSWERS, (), None, odd.caution(loaded.source), odd.advice())
+        Problem(ProblemKind(getattr(odd, "problem_kind", ProblemKind.VALUES_NOT_ANSWERS.value)), (), None,
+                odd.caution(loaded.source), odd.advice())
         for odd in loaded.cautions + odd)
 
 
