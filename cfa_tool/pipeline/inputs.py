@@ -28,7 +28,7 @@ from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
                                          design_weights, refuse_shared_clusters)
 from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_matrix, read_summary_file,
-                                         summary_moments)
+                                         summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
 from cfa_tool.options import Option, option_in_both, own_keywords
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, check_rows_counted, printable
@@ -154,6 +154,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
+        summary_in_other_text(data)
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items,
                          listed=listed, filters=filters, names_row=names_row, names_option=names_option,
                          first_data_row=first_data_row, renames=renames, renames_option=rename_option)
