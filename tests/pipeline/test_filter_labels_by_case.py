@@ -9,8 +9,6 @@ district label written capitalised; the rows of each label are counted with pand
 
 from __future__ import annotations
 
-import json
-
 import pytest
 
 import cfa_tool
@@ -29,13 +27,11 @@ def mixed(rider_demo):
 def test_keep_says_first_the_rows_written_in_other_case(mixed, rider_model):
     capital = int((mixed["district"].str.strip() == "North").sum())  # counted by pandas
     kept = cfa_tool.fit(rider_model, mixed, keep="district = north")
+    said = (f"Row filter 'district = north' matches text exactly, upper and lower case included, and 'district' also "
+            f"holds 'North' ({capital} rows), which differs from 'north' only in case: the filter left it out.")
+    assert (kept.problems[0].kind, kept.problems[0].explanation) == (ProblemKind.FILTER_LABELS_BY_CASE, said)
+    assert "recode 'district'" in kept.problems[0].advice
     assert kept.n_obs == int((mixed["district"].str.strip() == "north").sum())  # exact match kept
-    first = kept.problems[0]
-    assert first.kind is ProblemKind.FILTER_LABELS_BY_CASE
-    assert first.explanation == (f"Row filter 'district = north' matches text exactly, upper and lower case "
-                                 f"included, and 'district' also holds 'North' ({capital} rows), which differs from "
-                                 f"'north' only in case: the filter left it out.")
-    assert "recode 'district'" in first.advice
     other = cfa_tool.fit(rider_model, mixed, keep="district != north")
     assert other.problems[0].explanation.endswith("the filter kept it.")
     # a file written in one case says nothing of the kind
@@ -43,20 +39,16 @@ def test_keep_says_first_the_rows_written_in_other_case(mixed, rider_model):
     assert ProblemKind.FILTER_LABELS_BY_CASE not in [p.kind for p in plain.problems]
 
 
-@pytest.mark.parametrize("argv", [
-    ["fit", "{model}", "--data", "{data}"],
-    ["check", "{model}", "--data", "{data}"],
-    ["replicate", "{model}", "--calibration", "{half}", "--validation", "{data}"],
-    ["explore", "--data", "{data}"],
-])
-def test_every_command_taking_keep_says_it_first(argv, mixed, rider_model, tmp_path, capsys):
-    files = {"model": tmp_path / "m.cfa", "data": tmp_path / "survey.csv", "half": tmp_path / "first.csv"}
-    files["model"].write_text(rider_model)
-    mixed.iloc[240:].to_csv(files["data"], index=False)
-    mixed.iloc[:240].to_csv(files["half"], index=False)
-    args = [a.format(**files) for a in argv] + ["--keep", "district = north", "--json", str(tmp_path / "r.json")]
-    code, out, _ = run_cli(args, capsys)
-    assert code == 0
-    plain = " ".join(out.replace("│", " ").replace("┃", " ").split())
-    assert plain.index("also holds 'North' (") < 300  # first
-    assert ProblemKind.FILTER_LABELS_BY_CASE.value in (tmp_path / "r.json").read_text()
+def test_every_command_taking_keep_says_it_first(mixed, rider_model, tmp_path, capsys):
+    model, data, half = tmp_path / "m.cfa", tmp_path / "survey.csv", tmp_path / "first.csv"
+    model.write_text(rider_model)
+    mixed.iloc[240:].to_csv(data, index=False)
+    mixed.iloc[:240].to_csv(half, index=False)
+    saved = tmp_path / "r.json"
+    commands = {"fit": [model, "--data", data], "check": [model, "--data", data],
+                "replicate": [model, "--calibration", half, "--validation", data], "explore": ["--data", data]}
+    for command, rest in commands.items():
+        code, out, _ = run_cli([command, *rest, "--keep", "district = north", "--json", saved], capsys)
+        words = " ".join(out.replace("│", " ").replace("┃", " ").split())
+        assert (code, words.find("also holds 'North' (") in range(300)) == (0, True), command  # first
+        assert ProblemKind.FILTER_LABELS_BY_CASE.value in saved.read_text(), command

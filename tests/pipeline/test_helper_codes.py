@@ -16,21 +16,16 @@ import cfa_tool
 from cfa_tool.data.odd_values import OddKind
 from cfa_tool.errors import OptionError
 from tests.conftest import run_cli
+from tests.pipeline.test_missing_helpers import frame  # noqa: F401 (a fixture)
 
 MODEL = "factor F: y1, y2, y3, y4\n"
 
 
 @pytest.fixture(scope="module")
-def coded() -> pd.DataFrame:
-    """Four items with gaps where 'age' is high (seed 43), and age written -99 in every sixth row."""
-    rng = np.random.default_rng(43)
-    n = 360
-    f = rng.normal(size=n)
-    y = np.column_stack([0.75 * f + 0.66 * rng.normal(size=n) for _ in range(4)])
-    age = 40 + 10 * (0.7 * y[:, 0] + 0.7 * rng.normal(size=n))
-    y[age > np.quantile(age, 0.7), 0] = np.nan
-    out = pd.DataFrame(y.round(3), columns=["y1", "y2", "y3", "y4"])
-    out["age"] = age.round(1)
+def coded(frame) -> pd.DataFrame:
+    """tests/pipeline/test_missing_helpers.py's answers (y1 missing where 'age' is high), age written -99 in every
+    sixth row."""
+    out = frame[["y1", "y2", "y3", "y4", "age"]].copy()
     out.loc[out.index[::6], "age"] = -99.0
     return out
 
@@ -59,24 +54,24 @@ def test_missing_codes_apply_to_helpers(coded):
 
 
 def test_a_helper_of_dates_or_true_false_is_refused_as_a_helper(coded, tmp_path, capsys):
-    frame = coded.assign(when=pd.Timestamp("2026-01-01") + pd.to_timedelta(np.arange(len(coded)), unit="D"),
+    dated = coded.assign(when=pd.Timestamp("2026-01-01") + pd.to_timedelta(np.arange(len(coded)), unit="D"),
                          flag=coded["y2"] > 0, district=np.where(np.arange(len(coded)) % 2, "north", "south"))
     book = tmp_path / "dated.xlsx"
-    frame.to_excel(book, index=False)
+    dated.to_excel(book, index=False)
     model = tmp_path / "m.cfa"
     model.write_text(MODEL)
-    letters = {name: chr(ord("A") + i) for i, name in enumerate(frame.columns)}
+    letters = {name: chr(ord("A") + i) for i, name in enumerate(dated.columns)}
     code, _, err = run_cli(["fit", model, "--data", book, "--missing-helpers", "when"], capsys)
     assert code == 2
     assert (f"the missing-data helper 'when' (--missing-helpers) holds dates or times ('2026-01-01 00:00:00' in row "
-            f"2, cell {letters['when']}2, and {len(frame) - 1} more such cells)") in err
+            f"2, cell {letters['when']}2, and {len(dated) - 1} more such cells)") in err
     assert "indicators must be numbers" not in err
     code, _, err = run_cli(["fit", model, "--data", book, "--missing-helpers", "flag"], capsys)
-    first = "TRUE" if frame["flag"].iloc[0] else "FALSE"
+    first = "TRUE" if dated["flag"].iloc[0] else "FALSE"
     assert code == 2 and f"holds TRUE/FALSE values ('{first}' in row 2, cell {letters['flag']}2" in err
     text = tmp_path / "dated.csv"
-    frame.to_csv(text, index=False)
+    dated.to_csv(text, index=False)
     code, _, err = run_cli(["fit", model, "--data", text, "--missing-helpers", "district"], capsys)
     assert code == 2 and "holds text ('south' in row 2, and" in err  # the file's row 2: its first row of data
     with pytest.raises(OptionError, match=r"holds text \('south' in index label 0, and"):
-        cfa_tool.fit(MODEL, frame, missing_helpers="district")
+        cfa_tool.fit(MODEL, dated, missing_helpers="district")
