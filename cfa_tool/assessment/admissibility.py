@@ -107,6 +107,11 @@ class ProblemKind(enum.Enum):
     SELECTED_ON_ITEM = ("rows selected on a model item", "selected on an item", False)
     # a row filter comparing a label that several codes of a coded column carry: it keeps the rows of them all
     FILTER_LABEL_OF_SEVERAL_CODES = ("row filter label of several codes", "label of several codes", False)
+    # a row filter comparing text that the column also holds in other upper and lower case ('North' for 'north')
+    FILTER_LABELS_BY_CASE = ("row filter text differing only in case", "labels differing only in case", False)
+    # not of the solution but of the data: a workbook read without a sheet named whose other sheets hold the model's
+    # items too (data.readers.OtherSheets): only one sheet of a survey split over sheets was analysed
+    OTHER_SHEETS_WITH_ITEMS = ("other sheets with the model's items", "other sheets hold the items", False)
     UNKNOWN_GROUPS_SCORED = ("rows in groups the fit does not have", "groups the fit lacks", False)
     # not of the solution but of the rows scored: ids that name several rows, in a file meant to be merged by id
     REPEATED_IDS_SCORED = ("ids that name several rows", "repeated ids", False)
@@ -284,6 +289,10 @@ class Problem:
             K.SELECTED_ON_ITEM: "a row filter selecting rows by their answers to a model item (range restriction)",
             K.FILTER_LABEL_OF_SEVERAL_CODES: "a row filter on a value label that several codes carry, whose rows it "
                                              "took together",
+            K.OTHER_SHEETS_WITH_ITEMS: "a workbook whose other sheets hold the model's items too, of which one sheet "
+                                       "was analysed",
+            K.FILTER_LABELS_BY_CASE: "a row filter whose text the column also holds in other upper and lower case, "
+                                     "which it treated as another value",
             K.WEAK_METHOD_FACTOR: f"a factor beside the traits ({', '.join(names)}) whose standardized loadings are "
                                   f"all below .20 in size",
             K.SMALL_GROUP: f"fewer rows ({v.split('.')[0]}) than free parameters of the group's model",

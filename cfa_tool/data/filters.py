@@ -48,6 +48,10 @@ class RowFilter:
     #: filter, when several codes present carry it (1 and 3 both 'north'; set by apply_filters): the filter treats
     #: them as one, which a caution says
     shared: tuple[tuple[str, int], ...] = ()
+    #: the labels of the column that differ from the text compared only in upper and lower case ('North' for
+    #: 'district = north'), each with its rows before the filter (set by apply_filters): a filter matches text exactly,
+    #: so it treats them as other values, which a caution says (as the group column's caution does)
+    other_case: tuple[tuple[str, int], ...] = ()
 
     def __str__(self) -> str:
         return self.text
@@ -214,7 +218,8 @@ def apply_filters(frame: pd.DataFrame, filters: list[RowFilter], source: str,
             absent = (f"; no row has '{printable(label_text(f.value))}' in '{printable(f.column)}' (values present: "
                       f"{_present(values, target)})" + _case_hint(values, target))
         before = len(frame)
-        f = replace(f, empty=int(column.isna().sum()), dropped=int((~keep & column.notna()).sum()), shared=shared)
+        f = replace(f, empty=int(column.isna().sum()), dropped=int((~keep & column.notna()).sum()), shared=shared,
+                    other_case=_other_case(values, target) if f.operator in ("=", "!=") else ())
         counted.append(f)
         frame = frame.loc[keep.to_numpy()]
         emptied = (f"left out {f.empty_words()} (an empty cell meets no comparison, '!=' included), and "
@@ -267,6 +272,17 @@ def _case_hint(values: pd.Series, target) -> str:
     return ("; a row filter matches text exactly, upper and lower case included (unlike the words of an 'answers' "
             "statement)" + (f": write {' or '.join(repr(printable(a)) for a in alike)} as the data have it"
                             if alike else ""))
+
+
+def _other_case(values: pd.Series, target) -> tuple[tuple[str, int], ...]:
+    """The labels among ``values`` (as a filter compares them) that differ from the text ``target`` only in upper
+    and lower case, each with its rows: ('North', 63) for 'north'; () for a number."""
+    if isinstance(target, float) or not isinstance(target, str):
+        return ()
+    folded = target.casefold()
+    counts = values.dropna().map(str).value_counts()
+    return tuple(sorted((str(label), int(n)) for label, n in counts.items()
+                        if label != target and label.casefold() == folded))
 
 
 def _cell_label(value) -> str:

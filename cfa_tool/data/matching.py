@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from cfa_tool.suggest import close_names
-from cfa_tool.errors import ModelError, OptionError, character_names
+from cfa_tool.errors import DataError, ModelError, OptionError, character_names, printable
 from cfa_tool.options import Option
 from cfa_tool.language.spec import Spec
 from cfa_tool.data.odd_values import code_like
@@ -137,6 +137,10 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
                 labels[a.code] = labels[a.code] + " / " + a.shown if a.code in labels else a.shown
         for v in sorted(set(values[outside].tolist())):
             found.setdefault(keying, []).append((name, v, rows[values == v], labels.get(v)))
+    if found:
+        first = next(iter(found))
+        _summary_row_first(frame, spec, data_name, {int(r) for stray in found.values() for *_, where, _ in stray
+                                                    for r in where}, f"{first.minimum:g} to {first.maximum:g}")
     for keying, stray in found.items():
         shown = []
         for name, v, where, label in stray[:6]:
@@ -166,6 +170,47 @@ def check_declared_ranges(spec: Spec, frame, data_source: str, value_labels: dic
             location,
             spec.source_line(location),
         )
+
+
+def _summary_row_first(frame, spec: Spec, data_name: str, strays: set[int], scale: str) -> None:
+    """A data error naming a spreadsheet's totals or means row (data.odd_values: its values equal the other rows'
+    sums or means) when every answer outside a declared scale is in such rows (new-user trial s13, U2): the
+    scale's check would otherwise advise giving the column sums as --missing-codes, which the methods paragraph
+    would then report as codes of no answer.  The advice leaves the row out, by a row filter on a text cell that
+    names it (its 'Total' in the id column) when it has one."""
+    from cfa_tool.data.moments import row_numbers
+    import numpy as np
+
+    from cfa_tool.data.odd_values import OddKind, odd_values
+
+    rows = row_numbers(frame)
+    found = [o for o in odd_values(frame, spec.observed_names, rows)
+             if o.kind in (OddKind.SUMS_ROW, OddKind.MEANS_ROW)]
+    summary = {int(r) for o in found for r in o.rows}
+    if not found or not strays <= summary:
+        return
+    odd = found[0]
+    position = int(np.flatnonzero(np.asarray(rows) == odd.rows[0])[0])
+    named = _naming_cell(frame, spec, position)
+    keep = f" ({Option.KEEP.given(f'{printable(named[0])} != {printable(named[1])}')})" if named else ""
+    more = f" (and {len(found) - 1} more such rows)" if len(found) > 1 else ""
+    raise DataError(f"{odd.caution(data_name)}{more} Its values lie outside the scale {scale} that a 'reversed' "
+                    f"statement of the model declares, so the model cannot be fitted with it. What to try: delete "
+                    f"the row from the file, or leave it out with a row filter{keep}; its values are not "
+                    f"missing-value codes.")
+
+
+def _naming_cell(frame, spec: Spec, position: int) -> tuple[str, str] | None:
+    """The first column outside the model whose cell at ``position`` is text that no other row holds ('resp_id',
+    'Total'), or None: a row filter can leave that row out by it."""
+    for column in frame.columns:
+        if column in spec.observed_names:
+            continue
+        value = frame[column].iloc[position]
+        if isinstance(value, str) and value.strip() and "'" not in value and '"' not in value \
+                and int((frame[column] == value).sum()) == 1:
+            return str(column), value.strip()
+    return None
 
 
 def answer_range_notes(spec: Spec, frame, data_source: str, value_labels: dict | None = None,

@@ -27,7 +27,7 @@ def missing_codes_note(source: str | Path, codes, read_as_none: list[tuple[str, 
         return f"{name}: no cell {where or 'of numbers'} holds any of the codes given with --missing-codes ({given})"
     total = sum(n for _, n in read_as_none)
     shown = ", ".join(f"{printable(str(column))} {n}" for column, n in read_as_none[:NAMED_COLUMNS]) + (
-        f" and {len(read_as_none) - NAMED_COLUMNS} more columns" if len(read_as_none) > NAMED_COLUMNS else "")
+        f" and {len(read_as_none) - NAMED_COLUMNS} more column{'s' if len(read_as_none) - NAMED_COLUMNS != 1 else ''}" if len(read_as_none) > NAMED_COLUMNS else "")
     return (f"{name}: {total} {'cell' if total == 1 else 'cells'} {where + ' ' if where else ''}holding a code given "
             f"with --missing-codes ({given}) {'was' if total == 1 else 'were'} read as no answer ({shown})")
 

@@ -197,7 +197,7 @@ class BeyondScale:
                      f"row{'s' if cells != 1 else ''} {shown}), beyond its other labelled answers")
         else:
             each = [f"{printable(c)} {len(r)}" for c, r in zip(self.columns, self.rows)]
-            listed = ", ".join(each[:SHOWN]) + (f" and {len(each) - SHOWN} more items" if len(each) > SHOWN else "")
+            listed = ", ".join(each[:SHOWN]) + (f" and {_more(len(each) - SHOWN, 'item')}" if len(each) > SHOWN else "")
             where = (f"{len(self.columns)} items of {name} hold the code {self.value:g} labelled "
                      f"'{printable(self.label)}' ({cells} cells: {listed}), beyond their other labelled answers")
         return f"{where} ({self.scale[0]:g} to {self.scale[1]:g}), analysed as an answer: a code of no answer?"
@@ -312,11 +312,16 @@ def written_non_answers(frame: pd.DataFrame, keep_text: tuple[str, ...] = (),
 BRIEF = 3
 
 
+def _more(count: int, noun: str) -> str:
+    """'1 more item', '4 more items': the end of a list cut short (``noun`` in the singular)."""
+    return f"{count} more {noun}{'s' if count != 1 else ''}"
+
+
 def _brief(names: list[str], noun: str) -> str:
     """'a, b and c', or 'a, b, c and 4 more NOUN' past :data:`BRIEF` names."""
     shown = names[:BRIEF]
     if len(names) > BRIEF:
-        return f"{', '.join(shown)} and {len(names) - BRIEF} more {noun}"
+        return f"{', '.join(shown)} and {_more(len(names) - BRIEF, noun)}"
     return shown[0] if len(shown) == 1 else f"{', '.join(shown[:-1])} and {shown[-1]}"
 
 
@@ -331,8 +336,8 @@ def non_answer_clause(found: tuple[NonAnswer, ...], items=None) -> str:
     columns: dict[str, list[str]] = {}
     for f in mine:
         columns.setdefault(f.shown(), []).append(printable(f.column))
-    values = [f"{value} in {_brief(list(dict.fromkeys(names)), 'items')}" for value, names in columns.items()]
-    shown = "; ".join(values[:BRIEF]) + (f"; and {len(values) - BRIEF} more values" if len(values) > BRIEF else "")
+    values = [f"{value} in {_brief(list(dict.fromkeys(names)), 'item')}" for value, names in columns.items()]
+    shown = "; ".join(values[:BRIEF]) + (f"; and {_more(len(values) - BRIEF, 'value')}" if len(values) > BRIEF else "")
     return f"values the data file marks as no answer were treated as missing ({shown})"
 
 
@@ -351,7 +356,7 @@ def non_answer_caution(found: tuple[NonAnswer, ...], source: str, items=None) ->
     for group in by_value.values():
         cells = sum(len(f.rows) for f in group)
         listed = ", ".join(f"{printable(f.column)} {len(f.rows)}" for f in group[:SHOWN])
-        more = f" and {len(group) - SHOWN} more items" if len(group) > SHOWN else ""
+        more = f" and {_more(len(group) - SHOWN, 'item')}" if len(group) > SHOWN else ""
         parts.append(f"{group[0].shown()} ({cells} cell{'s' if cells != 1 else ''}: {listed}{more})")
     total = sum(len(f.rows) for f in mine)
     kinds = {f.kind for f in mine}

@@ -67,6 +67,9 @@ class OddValues:
     answers: int
     others: tuple[float, float]  # lowest and highest of the other answers (over the columns named)
     naming: RowNaming = RowNaming.FILE_ROW  # how ``rows`` name the rows (data.kept_rows.RowNaming)
+    #: what the columns are in the analysis, as the caution names them: the model's items, or the missing-data
+    #: helpers, which enter the likelihood as items do and are screened alike (pipeline.inputs.with_helper_codes)
+    role: str = "item"
 
     def caution(self, source: str) -> str:
         """The one line a report shows first: the columns, the value, how many rows and which."""
@@ -75,8 +78,8 @@ class OddValues:
         if self.kind is OddKind.MISSING_CODE:
             value = _number(self.values[0])
             rows = "row" if len(self.rows) == 1 else "rows"
-            where = (f"The item column {printable(self.columns[0])} of {name} holds" if len(self.columns) == 1 else
-                     f"{len(self.columns)} item columns of {name} ({_listed(self.columns)}) hold")
+            where = (f"The {self.role} column {printable(self.columns[0])} of {name} holds" if len(self.columns) == 1
+                     else f"{len(self.columns)} {self.role} columns of {name} ({_listed(self.columns)}) hold")
             return (f"{where} the value "
                     f"{value} ({self.answers} answers in {len(self.rows)} {rows}: {self.naming.of(len(self.rows))} "
                     f"{_listed(self.rows)}), "

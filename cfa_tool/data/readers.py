@@ -361,6 +361,10 @@ def _read_excel(path: Path, sheet: str | None, notes: list[str], names_out: list
     where = f"{path} (sheet '{printable(ws.title)}')"
     if len(names) > 1:
         notes.append(_sheet_note(path, ws.title, names, hidden, sheet is not None))
+        if sheet is None and items and hidden_out is not None:
+            alike = _sheets_with_items(book, ws.title, items)
+            if alike:
+                hidden_out.append(OtherSheets(ws.title, alike))
     if not isinstance(ws, openpyxl.worksheet.worksheet.Worksheet):
         raise DataError(f"{where} is a chart, not a table of data; choose a sheet of data with {Option.SHEET} "
                         f"(sheets: {printable(', '.join(names))})")
@@ -487,6 +491,53 @@ class HiddenRows:
     def to_dict(self) -> dict:
         return {"sheet": self.sheet, "rows": list(self.rows), "of": self.of, "filtered": self.filtered,
                 "keep": self.keep}
+
+
+#: rows at the top of another sheet searched for the model's item names (a title and question texts may come first)
+SHEET_HEADER_ROWS = 20
+
+
+def _sheets_with_items(book, read: str, items) -> tuple[str, ...]:
+    """The sheets of ``book`` other than ``read`` with a row (among their first :data:`SHEET_HEADER_ROWS`) that
+    names every one of the model's ``items``: the same survey split over sheets (Wave1, Wave2), of which a run that
+    names no sheet reads the first only."""
+    wanted = {str(i) for i in items}
+    found = []
+    for name in book.sheetnames:
+        ws = book[name]
+        if name == read or not hasattr(ws, "iter_rows"):
+            continue
+        for row in ws.iter_rows(max_row=SHEET_HEADER_ROWS, values_only=True):
+            if wanted <= {str(v).strip() for v in row if v is not None}:
+                found.append(name)
+                break
+    return tuple(found)
+
+
+@dataclass(frozen=True)
+class OtherSheets:
+    """Other sheets of a workbook read without a sheet named that hold columns named as every item of the model:
+    only ``read`` was analysed, which a researcher who split a survey over sheets would not see in a plain note
+    (hostile trial s13, H8).  Named first in every view, as :class:`HiddenRows` are."""
+
+    read: str
+    sheets: tuple[str, ...]
+    #: the kind of problem every view files it under (assessment.admissibility.ProblemKind's value)
+    problem_kind: str = "other sheets with the model's items"
+
+    def caution(self, source: str) -> str:
+        name = source.replace("\\", "/").rsplit("/", 1)[-1]
+        listed = " and ".join(f"'{printable(s)}'" for s in self.sheets)
+        other = "sheet" if len(self.sheets) == 1 else "sheets"
+        return (f"{name}: only the sheet '{printable(self.read)}' was analysed, and the workbook's {other} {listed} "
+                f"{'holds' if len(self.sheets) == 1 else 'hold'} columns named as every item of the model too.")
+
+    def advice(self) -> str:
+        return (f"If the data are split over the sheets, put their rows in one sheet (or one CSV file) in a copy of "
+                f"the workbook; to analyse another sheet, name it with {Option.SHEET}.")
+
+    def to_dict(self) -> dict:
+        return {"sheet_read": self.read, "other_sheets_with_items": list(self.sheets)}
 
 
 def _filter_kept(ws, header: list, skipped: int) -> str | None:

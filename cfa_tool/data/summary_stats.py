@@ -64,6 +64,8 @@ MAX_SUMMARY_BYTES = 50_000_000
 KINDS = ("covariance", "correlation")
 EXTRA_ROWS = ("n", "sd", "mean", "divisor")
 SUMMARY_SUFFIX = ".stats"
+#: which files summary statistics are read from, in the words of a message about a matrix in another kind of file
+SUMMARY_FORMATS = f"summary statistics are read from comma-separated .csv files and {SUMMARY_SUFFIX} files only"
 #: the keyword lines of the first version of the format, recognised only to say how to write the file now
 OLD_KEYS = ("variables", "observations", "matrix", "sd", "means", "divisor", "values")
 NEW_FORM = ("write it as comma-separated lines: 'covariance,x1,x2,...' (or 'correlation,...'), one line per "
@@ -384,6 +386,10 @@ def pasted_matrix(frame: pd.DataFrame, row_names: pd.Series | None, items, sourc
     others = [n for n in names if n not in columns and n]  # rows after the matrix (a variable's row is no such row)
     rename = (f"; after the matrix come only rows named {', '.join(EXTRA_ROWS)} (here "
               f"{', '.join(repr(printable(n)) for n in others[:4])})" if others else "")
+    if corner == f"'{kind}'":  # laid out as summary statistics, in a file of another format
+        raise DataError(f"{source} holds a {kind} matrix laid out as summary statistics ('{kind}' in its first "
+                        f"cell, its rows named as its columns {span}), but {SUMMARY_FORMATS}; save the sheet as a "
+                        f"comma-separated .csv file and give that file")
     raise DataError(f"{source} looks like a {kind} matrix, not rows of answers: its rows are named as its columns "
                     f"{span}, {shown}; to fit it as "
                     f"summary statistics write '{kind}' in its first cell (now {corner}) and add a row 'n' with "
@@ -407,3 +413,18 @@ def _matrix_kind(block: np.ndarray) -> str | None:
         return None
     bound = np.sqrt(np.outer(diagonal, diagonal))
     return "covariance" if (np.abs(np.tril(block, -1)) <= bound * (1 + 1e-9)).all() else None
+
+
+#: text files of other delimiters, whose rows the data reader reads as answers
+OTHER_TEXT_SUFFIXES = (".tsv", ".tab", ".txt")
+
+
+def summary_in_other_text(path: str | Path) -> None:
+    """A tab-separated (or .txt) file whose first cell is 'covariance' or 'correlation', as a summary-statistics
+    file's is: an error saying that summary statistics are read from .csv and .stats files (hostile trial s13, H10:
+    the data reader refused it for its ragged lower triangle, 'line 2 has 2 fields but the header has 13')."""
+    suffix = Path(path).suffix.lower()
+    if suffix in OTHER_TEXT_SUFFIXES and holds_summary(path):
+        raise DataError(f"{path} starts as a summary-statistics file does (its first cell names a matrix), but "
+                        f"{SUMMARY_FORMATS}; save it comma-separated with the extension .csv (or {SUMMARY_SUFFIX}) "
+                        f"and give that file")

@@ -30,7 +30,7 @@ from cfa_tool.data.row_ids import duplicate_note, ids_by_row_number, row_ids
 from cfa_tool.data.sample_design import (DesignColumns, apply_design, check_design, design_columns, design_summary,
                                          design_weights, refuse_shared_clusters)
 from cfa_tool.data.summary_stats import (SUMMARY_SUFFIX, holds_summary, pasted_matrix, read_summary_file,
-                                         summary_moments)
+                                         summary_in_other_text, summary_moments)
 from cfa_tool import options as opt
 from cfa_tool.options import Option, option_in_both, own_keywords
 from cfa_tool.errors import DataError, EstimationError, ModelError, OptionError, RowDataError, check_rows_counted, printable
@@ -156,6 +156,7 @@ def load_data(data: pd.DataFrame | str | Path, sheet: str | None = None, missing
         if summary_source(data):
             raise OptionError(f"'{data}' holds summary statistics, and this needs raw data (rows of answers); "
                               f"summary statistics work with fit, check and compare")
+        summary_in_other_text(data)
         return read_data(data, sheet=sheet, missing_codes=tuple(missing_codes), text_columns=text_columns, items=items,
                          listed=listed, filters=filters, names_row=names_row, names_option=names_option,
                          first_data_row=first_data_row, renames=renames, renames_option=rename_option)
@@ -243,8 +244,26 @@ def read_inputs_with_notes(model, data, sheet=None, missing_codes=(), keep=(),
         if loaded.value_labels else ()
     frame = _codes_as_labels(frame, loaded.value_labels, spec.observed_names)  # said where used (labels.label_notes)
     items = ItemColumns(frame, spec.observed_names, values)  # the items' codes are kept as they are
+    found = odd_values(frame, spec.observed_names, row_numbers(frame), items.values)
     return spec, replace(loaded, frame=frame, cautions=cautions + beyond, items=items,
-                         odd_values=odd_values(frame, spec.observed_names, row_numbers(frame), items.values)), notes
+                         odd_values=found + summary_rows_kept(loaded, frame, spec.observed_names, found)), notes
+
+
+def summary_rows_kept(loaded: LoadedData, frame: pd.DataFrame, names: tuple[str, ...], found: tuple) -> tuple:
+    """Rows of totals or means of the whole file (data.odd_values, judged against every row read) that the row
+    filters kept in ``frame`` and the screening of the rows kept did not find (hostile trial s13, H5): a means row
+    labelled 'Average' passes 'district != south', and against the kept rows alone its values are not their means."""
+    from cfa_tool.data.odd_values import OddKind
+
+    if loaded.read_frame is None or not loaded.row_filters:
+        return ()
+    kept = set(row_numbers(frame).tolist())
+    said = {int(r) for o in found for r in o.rows}
+    whole = loaded.read_frame
+    if not all(name in whole.columns for name in names):
+        return ()
+    return tuple(o for o in odd_values(whole, names, row_numbers(whole))
+                 if o.kind in (OddKind.SUMS_ROW, OddKind.MEANS_ROW) and o.rows[0] in kept and o.rows[0] not in said)
 
 
 def rows_kept(loaded: LoadedData, filters) -> tuple[LoadedData, list[str]]:
@@ -424,15 +443,19 @@ def fit(model: str | Path | Spec, data: pd.DataFrame | str | Path | None = None,
         return _described(of_summary_statistics(result, moments, notes), spec, None)
     if data is None:
         raise OptionError("give data (a data frame or a file) or a covariance matrix with n_obs")
-    spec, loaded, notes = read_inputs_with_notes(model, data, sheet, missing_codes, keep,
+    spec = load_spec(model)
+    helpers = helper_columns(spec, fit_options.missing_helpers)
+    spec, loaded, notes = read_inputs_with_notes(spec, data, sheet, missing_codes, keep,
                                                  (id_column,) if isinstance(id_column, str) else (), names_row=names_row,
-                                                 first_data_row=first_data_row, rename=rename)
+                                                 first_data_row=first_data_row, rename=rename,
+                                                 items=spec.observed_names + helpers if helpers else None)
     frame, source = loaded.frame, loaded.source
     ids = row_ids(frame, source, id_column, spec.observed_names, group, loaded.row_names)
     if id_column is not None:
         _id_can_apply(spec, ordinal, fit_options)
     if fit_options.missing_helpers:
         check_helper_columns(fit_options.missing_helpers, frame, source, spec, group, id_column, design)
+        loaded = with_helper_codes(loaded, helpers)
     loaded = with_design_weights(analysed_odd_values(loaded, spec, group), design, spec, group)
     by_row = ids_by_row_number(ids, frame)
     with odd_values_named(loaded):
@@ -587,7 +610,8 @@ def odd_value_problems(loaded: LoadedData, group: str | None = None, design: Des
     odd = tuple(o for o in loaded.odd_values if not (o.kind is OddKind.MISSING_CODE and all(
         (v, column) in labelled for v, column in zip(o.values, o.columns))))
     return ((Problem(ProblemKind.VALUES_READ_AS_MISSING, (), None, *marked),) if marked else ()) + tuple(
-        Problem(ProblemKind.VALUES_NOT_ANSWERS, (), None, odd.caution(loaded.source), odd.advice())
+        Problem(ProblemKind(getattr(odd, "problem_kind", ProblemKind.VALUES_NOT_ANSWERS.value)), (), None,
+                odd.caution(loaded.source), odd.advice())
         for odd in loaded.cautions + odd)
 
 
@@ -1176,20 +1200,68 @@ def check_helper_columns(helpers: tuple[str, ...], frame: pd.DataFrame, source: 
         if name in taken:
             raise OptionError(f"'{printable(name)}' is {taken[name]} and cannot also be a missing-data helper "
                               f"({Option.MISSING_HELPERS})")
-        column = frame[frame.columns[columns.index(name)]]
-        if column.dtype.kind not in "iuf":
-            text = column[column.notna() & pd.to_numeric(column, errors="coerce").isna()]
-            if len(text) or column.dtype.kind == "b":
-                first = f" ('{printable(str(text.iloc[0]))[:40]}' in row {row_numbers(text)[0]})" if len(text) else ""
-                raise OptionError(f"the missing-data helper '{printable(name)}' ({Option.MISSING_HELPERS}) holds "
-                                  f"text{first}; helpers must be numbers (a helper of categories needs them coded as "
-                                  f"numbers, one 0/1 column per category but one)")
+        helper_not_numbers(frame[frame.columns[columns.index(name)]], name, source, frame)
     if design is not None and design.robust:
         from cfa_tool.pipeline.continuous import HELPERS_NOT_ROBUST
 
         raise OptionError(f"missing-data helpers ({Option.MISSING_HELPERS}) are not offered with sampling weights, "
                           f"clusters or strata, whose standard errors are robust ones: {HELPERS_NOT_ROBUST}; frequency "
                           f"weights ({Option.WEIGHT_KIND.given('frequency')}) are")
+
+
+def helper_columns(spec: Spec, helpers) -> tuple[str, ...]:
+    """The missing-data helpers that are not the model's items: read as the items are (--missing-codes and the
+    words and labels that say no answer apply to them, data.readers), since a helper enters the full-information
+    likelihood as an item does (Graham 2003) and a code such as -99 read as a value would move the estimates."""
+    return tuple(h for h in (helpers or ()) if h not in spec.observed_names)
+
+
+def with_helper_codes(loaded: LoadedData, helpers: tuple[str, ...]) -> LoadedData:
+    """``loaded`` with the values of the missing-data ``helpers`` that look like missing-value codes (-99 among
+    ages: data.odd_values, screened as the items are) among its cautions, after the items' own."""
+    from cfa_tool.data.odd_values import OddKind
+
+    found = tuple(replace(o, role="missing-data helper") for o in odd_values(loaded.frame, helpers,
+                                                                             row_numbers(loaded.frame))
+                  if o.kind is OddKind.MISSING_CODE)
+    return replace(loaded, odd_values=loaded.odd_values + found) if found else loaded
+
+
+def helper_not_numbers(column: pd.Series, name: str, source: str, frame: pd.DataFrame) -> None:
+    """A missing-data helper that holds anything but numbers is refused in its own role's words (not an
+    indicator's), naming what it holds and its first such cell as every message names a cell (data.kept_rows.
+    cell_words: a file's row, a sheet's cell, a data frame's index label) and how many more there are."""
+    import datetime
+
+    from cfa_tool.data.kept_rows import cell_words
+
+    kind = column.dtype.kind
+    if kind in "iuf" and str(column.dtype) != "boolean":
+        return
+    if kind == "b" or str(column.dtype) == "boolean":
+        what, odd = "TRUE/FALSE values", column.notna()
+    elif kind in "mM" or isinstance(column.dtype, pd.DatetimeTZDtype):
+        what, odd = "dates or times", column.notna()
+    else:
+        odd = column.notna() & pd.to_numeric(column, errors="coerce").isna()
+        if not odd.any():
+            return
+        first_value = column[odd].iloc[0]
+        what = ("TRUE/FALSE values" if isinstance(first_value, (bool, np.bool_)) else
+                "dates or times" if isinstance(first_value, (datetime.date, pd.Timestamp, np.datetime64)) else "text")
+    if not odd.any():
+        return
+    position = int(np.flatnonzero(odd.to_numpy())[0])
+    value = column.iloc[position]
+    shown = ("TRUE" if value else "FALSE") if isinstance(value, (bool, np.bool_)) else printable(str(value))[:40]
+    more = int(odd.sum()) - 1
+    cells = f", and {more} more such cell{'s' if more != 1 else ''}" if more else ""
+    where = cell_words(frame, column.name, int(row_numbers(frame)[position]))
+    advice = ("code them as 0 and 1" if what.startswith("TRUE") else
+              "give a number such as the days since the first date, in a copy of the file" if what.startswith("dates")
+              else "a helper of categories needs them coded as numbers, one 0/1 column per category but one")
+    raise OptionError(f"{source}: the missing-data helper '{printable(name)}' ({Option.MISSING_HELPERS}) holds "
+                      f"{what} ('{shown}' in {where}{cells}); helpers must be numbers ({advice})")
 
 
 def helpers_can_apply(fit_options, frame: pd.DataFrame, names: tuple[str, ...], group: str | None,

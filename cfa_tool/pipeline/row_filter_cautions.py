@@ -26,6 +26,8 @@ def row_filter_problems(loaded: LoadedData, spec: Spec | None = None,
             found.append(selected_on_item(f, spec, where))
         if f.shared:
             found.append(label_of_several_codes(f, where))
+        if f.other_case:
+            found.append(labels_by_case(f, where))
     return tuple(found)
 
 
@@ -81,3 +83,22 @@ def label_of_several_codes(f, where: str = "") -> Problem:
         f"if the codes are different categories, filter by a code ({Option.KEEP.given(f'{column} {f.operator} {first}')}"
         f" compares the codes themselves) or give the codes different value labels in the data file; if they are one "
         f"category, nothing needs changing.")
+
+
+def labels_by_case(f, where: str = "") -> Problem:
+    """A row filter comparing text that the column also holds written in other upper and lower case ('district =
+    north' with 'North' in 63 rows): a filter matches text exactly, so those rows are treated as another value (left
+    out by '=', kept by '!='), as the group column keeps such labels apart (pipeline.inputs.group_case_problems):
+    only the researcher knows whether they are one.  A caution first, not a silent choice either way.  ``where``: the
+    file, as :func:`row_filter_problems` takes it."""
+    listed = " and ".join(f"'{printable(label)}' ({n} row{'s' if n != 1 else ''})" for label, n in f.other_case)
+    column = printable(f.column)
+    them = "it" if len(f.other_case) == 1 else "them"
+    did = f"left {them} out" if f.operator == "=" else f"kept {them}"
+    return Problem(
+        ProblemKind.FILTER_LABELS_BY_CASE, (), float(sum(n for _, n in f.other_case)),
+        f"Row filter '{printable(str(f))}'{where} matches text exactly, upper and lower case included, and '{column}' also "
+        f"holds {listed}, which differ{'s' if len(f.other_case) == 1 else ''} from '{printable(str(f.value))}' only in "
+        f"case: the filter {did}.",
+        f"if they are one value, recode '{column}' in a copy of the file so that they are written alike; if they are "
+        f"different values, nothing needs changing.")

@@ -1,0 +1,19 @@
+"""A list cut short ends '1 more item', not '1 more items' (new-user trial s13, U10: "pur4 2 and 1 more items"), in
+the caution on values the file writes as no answer and in the methods paragraph's clause on them."""
+
+from __future__ import annotations
+
+from cfa_tool.data.non_answers import SHOWN, BRIEF, NonAnswer, NonAnswerKind, non_answer_caution, non_answer_clause
+
+
+def _found(columns: int) -> tuple[NonAnswer, ...]:
+    return tuple(NonAnswer(NonAnswerKind.WRITTEN, f"q{i}", "Don't know", None, (i + 1,)) for i in range(columns))
+
+
+def test_one_more_item_in_the_singular():
+    caution, _ = non_answer_caution(_found(SHOWN + 1), "survey.csv")
+    assert caution.endswith(f"q{SHOWN - 1} 1 and 1 more item).")
+    caution, _ = non_answer_caution(_found(SHOWN + 2), "survey.csv")
+    assert caution.endswith(f"q{SHOWN - 1} 1 and 2 more items).")
+    assert non_answer_clause(_found(BRIEF + 1)).endswith("q2 and 1 more item)")
+    assert non_answer_clause(_found(BRIEF + 4)).endswith("q2 and 4 more items)")

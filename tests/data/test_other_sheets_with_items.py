@@ -1,0 +1,45 @@
+"""A workbook read without a sheet named whose other sheets hold the model's items too (a survey split over sheets,
+Wave1 and Wave2) is a caution first naming those sheets (hostile trial s13, H8): the first sheet alone was analysed
+with only a plain note that the workbook 'also has' another sheet.
+
+Data: the bundled demo (a fictional transit agency's rider survey, simulated with a fixed seed), split in two
+sheets by pandas; the rows analysed are counted with pandas."""
+
+from __future__ import annotations
+
+import json
+
+import pandas as pd
+
+import cfa_tool
+from cfa_tool.assessment.admissibility import ProblemKind
+from tests.conftest import run_cli
+
+
+def test_other_sheets_with_the_items_are_named_first(rider_demo, rider_model, tmp_path, capsys):
+    book = tmp_path / "waves.xlsx"
+    with pd.ExcelWriter(book) as writer:
+        rider_demo.iloc[:240].to_excel(writer, sheet_name="Wave1", index=False)
+        rider_demo.iloc[240:].to_excel(writer, sheet_name="Wave2", index=False)
+        pd.DataFrame({"note": ["fictional survey"]}).to_excel(writer, sheet_name="Notes", index=False)
+    result = cfa_tool.fit(rider_model, book)
+    assert result.n_obs == 240  # the first sheet, as before
+    first = result.problems[0]
+    assert first.kind is ProblemKind.OTHER_SHEETS_WITH_ITEMS
+    assert first.explanation == ("waves.xlsx: only the sheet 'Wave1' was analysed, and the workbook's sheet 'Wave2' "
+                                 "holds columns named as every item of the model too.")  # not 'Notes'
+    model = tmp_path / "m.cfa"
+    model.write_text(rider_model)
+    code, out, _ = run_cli(["fit", model, "--data", book, "--json", tmp_path / "r.json"], capsys)
+    assert code == 0
+    plain = " ".join(out.replace("│", " ").split())
+    assert plain.index("only the sheet 'Wave1' was analysed") < 200
+    assert json.loads((tmp_path / "r.json").read_text())["problems"][0]["kind"] == ProblemKind.OTHER_SHEETS_WITH_ITEMS.value
+    # a sheet named says nothing of the kind, nor does a workbook whose other sheet holds other columns
+    named = cfa_tool.fit(rider_model, book, sheet="Wave2")
+    assert ProblemKind.OTHER_SHEETS_WITH_ITEMS not in [p.kind for p in named.problems]
+    other = tmp_path / "notes.xlsx"
+    with pd.ExcelWriter(other) as writer:
+        rider_demo.to_excel(writer, sheet_name="Data", index=False)
+        rider_demo[["rider_id", "district"]].to_excel(writer, sheet_name="Riders", index=False)
+    assert ProblemKind.OTHER_SHEETS_WITH_ITEMS not in [p.kind for p in cfa_tool.fit(rider_model, other).problems]

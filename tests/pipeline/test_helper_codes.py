@@ -1,0 +1,77 @@
+"""A missing-data helper is read as an item is (hostile trial s13, H2/H12/H10): it enters the full-information
+likelihood as an item does (Graham 2003), so a code such as -99 among ages is named first when not declared, and
+--missing-codes reads it as no answer in the helper too (it was kept as an age, beside two notes contradicting each
+other); a helper that holds no numbers is refused in a helper's words, naming the cell where every message does.
+
+The check value is the fit of the same data with those cells left empty (what the code means), and the cells and
+rows are counted with pandas.  Data: simulated with a fixed seed."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import cfa_tool
+from cfa_tool.data.odd_values import OddKind
+from cfa_tool.errors import OptionError
+from tests.conftest import run_cli
+from tests.pipeline.test_missing_helpers import frame  # noqa: F401 (a fixture)
+
+MODEL = "factor F: y1, y2, y3, y4\n"
+
+
+@pytest.fixture(scope="module")
+def coded(frame) -> pd.DataFrame:
+    """tests/pipeline/test_missing_helpers.py's answers (y1 missing where 'age' is high), age written -99 in every
+    sixth row."""
+    out = frame[["y1", "y2", "y3", "y4", "age"]].copy()
+    out.loc[out.index[::6], "age"] = -99.0
+    return out
+
+
+def test_a_code_in_a_helper_is_named_first(coded):
+    result = cfa_tool.fit(MODEL, coded, missing_helpers="age")
+    first = result.problems[0]
+    codes = int((coded["age"] == -99).sum())  # counted by pandas
+    assert first.explanation.startswith(f"The missing-data helper column age of <data frame> holds the value -99 "
+                                        f"({codes} answers in {codes} rows")
+    assert "--missing-codes -99" in first.advice or "missing_codes=[-99]" in first.advice
+
+
+def test_missing_codes_apply_to_helpers(coded):
+    given = cfa_tool.fit(MODEL, coded, missing_helpers="age", missing_codes=[-99])
+    emptied = cfa_tool.fit(MODEL, coded.replace({"age": {-99.0: np.nan}}), missing_helpers="age")  # the reference
+    assert np.allclose([e.estimate for e in given.estimates], [e.estimate for e in emptied.estimates], atol=1e-8)
+    said = " ".join(given.warnings)
+    codes = int((coded["age"] == -99).sum())
+    assert f"{codes} cells holding a code given with" in said and f"(age {codes})" in said
+    assert "no cell of numbers holds" not in said and "other columns keep such a value" not in said
+    assert not any(p.explanation.startswith("The missing-data helper column") for p in given.problems)
+    # without helpers the column is no part of the analysis and keeps its values, as before
+    plain = cfa_tool.fit(MODEL, coded, missing_codes=[-99])
+    assert "other columns keep such a value as it is ('age' holds -99" in " ".join(plain.warnings)
+
+
+def test_a_helper_of_dates_or_true_false_is_refused_as_a_helper(coded, tmp_path, capsys):
+    dated = coded.assign(when=pd.Timestamp("2026-01-01") + pd.to_timedelta(np.arange(len(coded)), unit="D"),
+                         flag=coded["y2"] > 0, district=np.where(np.arange(len(coded)) % 2, "north", "south"))
+    book = tmp_path / "dated.xlsx"
+    dated.to_excel(book, index=False)
+    model = tmp_path / "m.cfa"
+    model.write_text(MODEL)
+    letters = {name: chr(ord("A") + i) for i, name in enumerate(dated.columns)}
+    code, _, err = run_cli(["fit", model, "--data", book, "--missing-helpers", "when"], capsys)
+    assert code == 2
+    assert (f"the missing-data helper 'when' (--missing-helpers) holds dates or times ('2026-01-01 00:00:00' in row "
+            f"2, cell {letters['when']}2, and {len(dated) - 1} more such cells)") in err
+    assert "indicators must be numbers" not in err
+    code, _, err = run_cli(["fit", model, "--data", book, "--missing-helpers", "flag"], capsys)
+    first = "TRUE" if dated["flag"].iloc[0] else "FALSE"
+    assert code == 2 and f"holds TRUE/FALSE values ('{first}' in row 2, cell {letters['flag']}2" in err
+    text = tmp_path / "dated.csv"
+    dated.to_csv(text, index=False)
+    code, _, err = run_cli(["fit", model, "--data", text, "--missing-helpers", "district"], capsys)
+    assert code == 2 and "holds text ('south' in row 2, and" in err  # the file's row 2: its first row of data
+    with pytest.raises(OptionError, match=r"holds text \('south' in index label 0, and"):
+        cfa_tool.fit(MODEL, dated, missing_helpers="district")
