@@ -9,7 +9,7 @@ from cfa_tool.pipeline.ordinal import ORDINAL_NOTE
 from cfa_tool.options import Option
 from cfa_tool.reporting.numbers import num, unit, word_list
 from cfa_tool.reporting.tables import HIGH_STAKES_NOTE, ReportTable, _table
-from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT
+from cfa_tool.workflows.factor_scores import ABOUT_THE_FIT, WHY_NOT_SCORED_COLUMN
 from cfa_tool.scoring.methods import (DETERMINACY_CAUTION, INDIVIDUAL_DECISIONS, ITEM_METHODS, LINEAR_METHODS,
                                       ScoreMethod, Unscored)
 
@@ -40,14 +40,30 @@ def header_lines(result) -> list[str]:
     scored = [f"Scored data: {result.scored_source} (with the parameters of the fit above)"] if result.scored_source else []
     return [f"Model file: {fit.model_source}", f"Data: {fit.data.source}; the model was fitted to {fit.n_obs} rows",
             f"Estimation of the fit: {fit.estimator}", *scored,
-            f"Scores ({methods}) of {result.rows} rows, one per row of the data in the file's order; columns: "
-            f"{first}one per factor" + ("" if not result.standard_errors else
+            f"Scores ({methods}) of {rows_scored(result)}, one line per row of the data in the file's order"
+            + _empty_lines(result) + f"; columns: {first}one per factor" + ("" if not result.standard_errors else
                                         " with its posterior standard deviation" if ScoreMethod.EXPECTED_A_POSTERIORI
                                         in result.methods else " with its standard error")
             + (" (factor scores only)" if result.standard_errors and any(m in ITEM_METHODS for m in result.methods)
                else "")
             + f"{' and method' if len(result.methods) > 1 else ''}, then per factor the number of its items the row "
-              f"answered"] + _design_line(fit)
+              f"answered" + (f", then {WHY_NOT_SCORED_COLUMN}" if result.not_scored else "")] + _design_line(fit)
+
+
+def rows_scored(result) -> str:
+    """'250 of the 480 rows' when some lines of the scores file hold no score, else '480 rows'."""
+    if result.rows_scored == result.rows:
+        return f"{result.rows} rows"
+    return f"{result.rows_scored} of the {result.rows} rows"
+
+
+def _empty_lines(result) -> str:
+    """What the lines without any score are, with their count by reason (the words of the why_not_scored column)."""
+    if not result.not_scored:
+        return ""
+    counts = ", ".join(f"{why.value} {n}" for why, n in result.not_scored.items())
+    return (f" (the {result.rows - result.rows_scored} without any score keep their line with empty cells, the column "
+            f"{WHY_NOT_SCORED_COLUMN} saying why: {counts})")
 
 
 def _design_line(fit) -> list[str]:

@@ -40,6 +40,21 @@ class RowLeftOut(Enum):
     UNKNOWN_GROUP = "a group the fit does not have"
 
 
+class NotScored(Enum):
+    """Why a whole line of the scores file has no score at all: the words of :data:`WHY_NOT_SCORED_COLUMN`."""
+
+    FILTERED = "filtered out"  # left out by a row filter (--keep)
+    BLANK = "blank row"  # a blank row of the file, kept as an empty line so that the lines match the file's rows
+    NO_ANSWERS = "no answers"  # no answer on the model's items
+    NO_GROUP = "no group"  # no value in the group column
+    UNKNOWN_GROUP = "group not in the fit"  # a group the earlier fit does not have
+    TOO_FEW_ANSWERS = "too few answers"  # answers, but too few for any score asked for (an item sum's least share)
+
+
+#: output column of the reason a line has no score at all (:class:`NotScored`), written when some line has none
+WHY_NOT_SCORED_COLUMN = "why_not_scored"
+
+
 #: the row of a summary-statistics file that gives what a fit lacks (data.summary_stats.NotGiven)
 _SUMMARY_ROW = {NotGiven.MEANS: "mean", NotGiven.STANDARD_DEVIATIONS: "sd"}
 
@@ -198,6 +213,43 @@ def _in_file_order(table: pd.DataFrame, data) -> pd.DataFrame:
     return table
 
 
+def _row_reasons(read_index: pd.Index, kept: pd.Index, rows: np.ndarray, group_of_row: np.ndarray, group,
+                 labels) -> pd.Series:
+    """The reason each row read would have no score at all, before scoring (None: the row is scored unless every
+    score it gets is empty): left out by a row filter, no group, a group the fit does not have, no answers on the
+    model's items (``rows``, ``group_of_row``: of the ``kept`` rows)."""
+    reasons = pd.Series(None, index=read_index, dtype=object)
+    reasons[~read_index.isin(kept)] = NotScored.FILTERED
+    own = np.full(len(kept), None, dtype=object)
+    own[np.isnan(rows).all(axis=1)] = NotScored.NO_ANSWERS
+    if group is not None:
+        missing = pd.isna(group_of_row)
+        own[~missing & ~np.isin(group_of_row, np.asarray(list(labels), dtype=object))] = NotScored.UNKNOWN_GROUP
+        own[missing] = NotScored.NO_GROUP
+    reasons[kept] = own
+    return reasons
+
+
+def _with_why_not_scored(table: pd.DataFrame, id_name, score_columns: list[str], reasons: pd.Series) -> pd.DataFrame:
+    """``table`` (the scores in file order, blank rows of the file as empty lines) with :data:`WHY_NOT_SCORED_COLUMN`
+    last when some line has no score at all, saying why (:class:`NotScored`; ``reasons``: :func:`_row_reasons`), so
+    that a line left empty is told apart from a person with no answers when the file is merged back; unchanged when
+    every line has a score."""
+    scored = table[score_columns].notna().any(axis=1).to_numpy()
+    if scored.all():
+        return table
+    if id_name == WHY_NOT_SCORED_COLUMN:
+        raise OptionError(f"the id column '{printable(id_name)}' has the name of a column the output holds; "
+                          f"rename that column in the data, or name the rows by another column")
+    known = table.index.isin(reasons.index)
+    why = np.full(len(table), None, dtype=object)
+    why[known] = reasons.reindex(table.index[known]).to_numpy()
+    why[~known] = NotScored.BLANK
+    why[scored] = None
+    why[~scored & pd.isna(why)] = NotScored.TOO_FEW_ANSWERS
+    return table.assign(**{WHY_NOT_SCORED_COLUMN: [None if w is None else w.value for w in why]})
+
+
 def partly_answered_note(model, answered: np.ndarray, method: ScoreMethod, errors: np.ndarray) -> list[str]:
     """The note on the scored rows that answered some but not all of a factor's items (``answered``: see
     :func:`_items_answered`; ``errors``: the standard errors of ``method``'s scores at the same places): their
@@ -222,6 +274,11 @@ def partly_answered_note(model, answered: np.ndarray, method: ScoreMethod, error
     return [f"Rows that answered some but not all of a factor's items are scored from the items they answered (the "
             f"_items_answered columns): their scores are less precise than the precision table says, which is for "
             f"rows that answered every item ({'; '.join(parts)}; SE: the {what})."]
+
+
+def score_columns(methods, factors) -> list[str]:
+    """The output's columns of scores (no standard errors), each method's factors in turn."""
+    return [column_name(f, meth) for meth in methods for f in factors]
 
 
 def column_name(factor: str, method: ScoreMethod, what: str = "") -> str:
@@ -454,7 +511,21 @@ class ScoreResult(Presentable):
 
     @property
     def rows(self) -> int:
+        """Lines of the scores file: one per row of the data read, in the file's order (blank rows of a file too)."""
         return len(self.table)
+
+    @property
+    def rows_scored(self) -> int:
+        """Lines with at least one score."""
+        return int(self.table[score_columns(self.methods, self.factors)].notna().any(axis=1).sum())
+
+    @property
+    def not_scored(self) -> dict[NotScored, int]:
+        """The lines without any score, by reason (:data:`WHY_NOT_SCORED_COLUMN`), in :class:`NotScored` order."""
+        if WHY_NOT_SCORED_COLUMN not in self.table.columns:
+            return {}
+        counts = self.table[WHY_NOT_SCORED_COLUMN].value_counts()
+        return {why: int(counts[why.value]) for why in NotScored if why.value in counts.index}
 
     @property
     def low_determinacy(self) -> tuple[str, ...]:
@@ -469,6 +540,8 @@ class ScoreResult(Presentable):
             "admissible": self.fit.admissible,
             "problems": [p.to_dict() for p in self.fit.problems],
             "rows": self.rows,
+            "rows_scored": self.rows_scored,
+            "rows_not_scored": {why.value: n for why, n in self.not_scored.items()},
             "methods": [m.value for m in self.methods],
             "factors": list(self.factors),
             "id_column": self.id_name,
@@ -601,6 +674,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
                                        len(read_index))
     table = _in_file_order(pd.DataFrame(columns, index=read_index), data)  # a data frame's own index: scores join
+    table = _with_why_not_scored(table, id_name, score_columns(chosen, factors),
+                                 _row_reasons(read_index, kept, rows, group_of_row, group, labels))
     if id_name is not None and id_name in list(table.columns)[1:]:
         raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
@@ -866,9 +941,10 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
         notes.insert(0, f"Scores of {source} with the parameters of the earlier fit of {result.model_source} to "
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
-    return ScoreResult(result, chosen, tuple(factors), id_name, _in_file_order(pd.DataFrame(columns, index=read_frame.index),
-                                                                               data),
-                       tuple(quality),
+    table = _with_why_not_scored(_in_file_order(pd.DataFrame(columns, index=read_frame.index), data), id_name,
+                                 score_columns(chosen, factors),
+                                 _row_reasons(read_frame.index, frame.index, rows, group_of_row, group, labels))
+    return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
                        unscored, with_errors, tuple(notes), source, tuple(warnings), summaries)
 
 
