@@ -183,7 +183,7 @@ def precision_table(result, k: int) -> ReportTable | None:
         own = ("each row's own standard error is the _se column of the file" if result.standard_errors else
                "each row's own standard error is written to the file when standard errors are asked for")
         first = f"For {METHOD_LABELS[method]} scores with every item answered ({own}). "
-    sds = ", ".join(f"{p.factor} {num(p.factor_sd, 2)}" for p in found)
+    sds = ", ".join(f"{p.factor} {num(p.scale_sd, 2)}" for p in found)
     first += (f"Scores, SEs and bands are in each factor's units as the model scales it (the factor's standard "
               f"deviation: {sds}). ")
     note = (first + f"SE: the typical distance of a score from the person's factor value; 95% band: "
@@ -192,6 +192,42 @@ def precision_table(result, k: int) -> ReportTable | None:
             f"the factor's standard deviation." + _one_item_sentence(result.fit))  # (Gulliksen: scoring.quality)
     return _table(f"score_precision_{k}", "How precise is one person's score?" + _where(q), cols, rows, note,
                   values=([c for c, _ in cols], values))
+
+
+def item_sum_precision_table(result, k: int) -> ReportTable | None:
+    """How precise one person's item sum (or mean) is: its standard error of measurement from the sum's SD under the
+    fitted model and its omega (scoring.quality.item_sum_precision), with the band and real difference of factor
+    scores, in the sum's (or mean's) own units."""
+    q = result.quality[k]
+    sums = _item_sums_of(result, q)
+    if sums is None or not sums.precision:
+        return None
+    both = len({p.method for p in sums.precision}) > 1
+    count = dict(zip(sums.factors, (len(items) for items in sums.items)))
+    rows, values = [], []
+    for p in sums.precision:
+        label = [METHOD_LABELS[p.method]] if both else []
+        rows.append([p.factor, *label, str(count[p.factor]), unit(p.reliability), num(p.scale_sd, 2),
+                     num(p.standard_error, 2), f"±{num(p.band, 2)}", num(p.smallest_difference, 2)])
+        values.append([p.factor, *label, count[p.factor], p.reliability, p.scale_sd, p.standard_error, p.band,
+                       p.smallest_difference])
+    cols = [("Factor", "l")] + ([("Score", "l")] if both else []) + [
+        ("Items", "r"), ("ω", "r"), ("SD", "r"), ("SEM", "r"), ("95% band", "r"), ("Real difference", "r")]
+    ordinal = not hasattr(q, "methods")
+    what = " of the answers' codes" if ordinal else ""
+    spread = ("from the fitted thresholds, loadings and factor variance (Green & Yang 2009)" if ordinal else
+              "√(k'Σk) for the keys k and the fitted covariance matrix Σ")
+    written = word_list(METHOD_LABELS[m] for m in ITEM_METHODS if m in result.methods)
+    note = (f"For the {written} of rows that answered every item of the factor, in the score's own units (an item "
+            f"sum's are those of the keyed sum{what}, an item mean's those of the answer scale: the sum's divided by "
+            f"the number of items). SD: the keyed sum's standard deviation under the fitted model ({spread}); ω: its "
+            f"reliability, as in the quality table; SEM: the standard error of measurement, SD × √(1 − ω) (Lord & "
+            f"Novick 1968), the typical distance of a person's score from their true score; 95% band: ±1.96 SEM "
+            f"about a score (normal approximation); real difference: the smallest difference between two people's "
+            f"scores that exceeds chance at the 5% level, 1.96 × √2 × SEM (Gulliksen 1950). A prorated score, of "
+            f"fewer items, is less precise than this.")
+    return _table(f"item_sum_precision_{k}", "How precise is one person's item score?" + _where(q), cols, rows,
+                  note, values=([c for c, _ in cols], values))
 
 
 def precision_cautions(result) -> list[str]:
@@ -366,8 +402,8 @@ def unscored_table(result) -> ReportTable | None:
 def score_tables(result) -> list[ReportTable]:
     out = []
     for k in range(len(result.quality)):
-        out += [t for t in (quality_table(result, k), precision_table(result, k), correlation_table(result, k),
-                            sum_table(result, k)) if t is not None]
+        out += [t for t in (quality_table(result, k), precision_table(result, k), item_sum_precision_table(result, k),
+                            correlation_table(result, k), sum_table(result, k)) if t is not None]
     extra = unscored_table(result)
     if extra is not None:
         out.append(extra)

@@ -325,12 +325,16 @@ class ItemSumSummary:
     not_summed: tuple[tuple[str, Unscored], ...]  # (factor, why it has no item sum)
     shared: tuple[tuple[str, tuple[str, ...]], ...]  # (item, the summed factors it counts on) for items on several
     prorated: tuple[int, ...] = ()  # rows of this group prorated, per summed factor
+    # scoring.quality.Precision of each summed factor's item sum and mean written (their standard error of
+    # measurement, from the sum's SD under the fitted model and its omega)
+    precision: tuple[Precision, ...] = ()
 
     def to_dict(self) -> dict:
         return clean({"group": self.group, "least_share_answered": self.rule.least_share,
                       "least_share_is_default": self.rule.default,
                       "factors": [{"factor": f, "items": list(items), "omega": w, "rows_prorated": n}
                                   for f, items, w, n in zip(self.factors, self.items, self.omega, self.prorated)],
+                      "precision": [p.to_dict() for p in self.precision],
                       "reversed": [r.to_dict() for r in self.reversals],
                       "not_summed": [{"factor": f, "reason": why.value} for f, why in self.not_summed],
                       "items_on_several_factors": [{"item": x, "factors": list(fs)} for x, fs in self.shared]})
@@ -736,8 +740,21 @@ def _score_each_group(models, labels, spec, fit, rule, rows, group_of_row, group
                     key = (why.value, meth.value)
                     counts[key] = counts.get(key, np.zeros(m, dtype=np.int64)) + np.asarray(c, dtype=np.int64)
         if parts is not None:
-            summaries.append(replace(parts.summary, prorated=prorated or (0,) * len(parts.summary.factors)))
+            summaries.append(replace(parts.summary, prorated=prorated or (0,) * len(parts.summary.factors),
+                                     precision=_item_sum_precision(model_g, parts, chosen)))
     return tuple(summaries)
+
+
+def _item_sum_precision(model, parts: _ItemParts, chosen) -> tuple[Precision, ...]:
+    """The precision of one group's item sums and means written (scoring.quality.item_sum_precision), from the sums'
+    SDs under the model (``model``: the group's scoring model, ordinal or not) and their omega in the fit."""
+    from cfa_tool.scoring.quality import item_sum_precision, keyed_sum_sds
+
+    summary = parts.summary
+    summed = [j for j, why in enumerate(parts.not_summed) if why is None]
+    sds = keyed_sum_sds(model, parts.keys)
+    return item_sum_precision(summary.factors, [len(items) for items in summary.items], sds[summed], summary.omega,
+                              chosen)
 
 
 def _partly_answered(model, answered: np.ndarray, chosen, errors: dict) -> list[str]:
