@@ -149,7 +149,7 @@ def quality_table(result, k: int) -> ReportTable:
 def _precision_of(result, q) -> tuple[ScoreMethod | None, tuple]:
     """(the method, its scoring.quality.Precision per factor) of one group's scores: the first factor-score method
     written (the posterior means for ordinal items, their one method); (None, ()) for item sums and means alone,
-    whose reliability the quality table gives."""
+    whose precision has its own table (:func:`item_sum_precision_table`)."""
     from cfa_tool.scoring.quality import precision_of
 
     method = next((m for m in result.methods if m not in ITEM_METHODS), None)
@@ -395,7 +395,8 @@ def unscored_table(result) -> ReportTable | None:
     values = [[reason, label, *counts] for (reason, _, counts), label in zip(result.unscored, labels)]
     return _table("unscored", "Rows without scores (empty cells), by reason",
                   [("Reason", "l"), ("Method: rows without a score", "l")], rows,
-                  "These rows stay in the file, in their place, with empty cells.",
+                  "These rows stay in the file, in their place, with empty cells; a row without any score says "
+                  f"why in the column {WHY_NOT_SCORED_COLUMN}.",
                   values=(["Reason", "Method", *result.factors], values))
 
 

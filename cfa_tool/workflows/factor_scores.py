@@ -32,23 +32,29 @@ from cfa_tool.scoring.methods import DETERMINACY_CAUTION, ITEM_METHODS, LINEAR_M
 from cfa_tool.scoring.quality import Precision, ScoreQuality, ordinal_sum_quality
 
 
-class RowLeftOut(Enum):
-    """Why a whole row of the data has no scores, beyond the reasons of :class:`Unscored`."""
-
-    FILTERED = "left out by a row filter (--keep)"
-    NO_GROUP = "no value in the group column"
-    UNKNOWN_GROUP = "a group the fit does not have"
-
-
 class NotScored(Enum):
-    """Why a whole line of the scores file has no score at all: the words of :data:`WHY_NOT_SCORED_COLUMN`."""
+    """Why a whole line of the scores file has no score at all: the words of :data:`WHY_NOT_SCORED_COLUMN`, and
+    (:attr:`reason`) the reason the table of empty cells gives for every cell of such a row."""
 
-    FILTERED = "filtered out"  # left out by a row filter (--keep)
+    FILTERED = "filtered out"
     BLANK = "blank row"  # a blank row of the file, kept as an empty line so that the lines match the file's rows
-    NO_ANSWERS = "no answers"  # no answer on the model's items
-    NO_GROUP = "no group"  # no value in the group column
-    UNKNOWN_GROUP = "group not in the fit"  # a group the earlier fit does not have
+    NO_ANSWERS = "no answers"
+    NO_GROUP = "no group"
+    UNKNOWN_GROUP = "group not in the fit"
     TOO_FEW_ANSWERS = "too few answers"  # answers, but too few for any score asked for (an item sum's least share)
+
+    @property
+    def reason(self) -> str:
+        return _REASONS[self]
+
+
+_REASONS = {NotScored.FILTERED: "left out by a row filter (--keep)", NotScored.BLANK: "a blank row of the file",
+            NotScored.NO_ANSWERS: Unscored.NO_ANSWERS.value, NotScored.NO_GROUP: "no value in the group column",
+            NotScored.UNKNOWN_GROUP: "a group the fit does not have",
+            NotScored.TOO_FEW_ANSWERS: "too few answers for any score asked for"}
+
+#: the reasons a whole row has no score that the scoring of each group does not count (its rows are not scored)
+_ROWS_LEFT_OUT = (NotScored.FILTERED, NotScored.NO_GROUP, NotScored.UNKNOWN_GROUP)
 
 
 #: output column of the reason a line has no score at all (:class:`NotScored`), written when some line has none
@@ -115,6 +121,14 @@ def item_rule(chosen, least_answered) -> ItemSumRule | None:
                                    open_low=True))
 
 
+def _refuse_id_named_as(id_name: str | None, written, what: str = "a column") -> None:
+    """The one error when the id column (``id_name``, None: none) has the name of a column the output writes beside
+    it (``written``): one of the two would overwrite the other."""
+    if id_name is not None and id_name in written:
+        raise OptionError(f"the id column '{printable(id_name)}' has the name of {what} the output holds; rename that "
+                          f"column in the data, or name the rows by another column")
+
+
 def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, errors: dict,
                    with_errors: bool, answered: np.ndarray) -> tuple[str | None, dict[str, object]]:
     """(name of the id column or None, the output's columns): the ids first, then each method's score of each
@@ -129,16 +143,12 @@ def _score_columns(ids, id_column: str | None, chosen, factors, values: dict, er
         for f, name in enumerate(factors):
             errors_here = with_errors and meth not in ITEM_METHODS  # a sum has no standard error of its own
             written = (column_name(name, meth),) + ((column_name(name, meth, "se"),) if errors_here else ())
-            if id_name in written:
-                raise OptionError(f"the id column '{printable(id_name)}' has the name of a column of scores the output "
-                                  f"holds; rename that column in the data, or name the rows by another column")
+            _refuse_id_named_as(id_name, written, "a column of scores")
             columns[column_name(name, meth)] = values[meth][:, f]
             if errors_here:
                 columns[column_name(name, meth, "se")] = errors[meth][:, f]
     for f, name in enumerate(factors):
-        if id_name == answered_column(name):
-            raise OptionError(f"the id column '{printable(id_name)}' has the name of a column the output holds; "
-                              f"rename that column in the data, or name the rows by another column")
+        _refuse_id_named_as(id_name, (answered_column(name),))
         columns[answered_column(name)] = pd.array([None if np.isnan(v) else int(v) for v in answered[:, f]],
                                                   dtype="Int64")
     return id_name, columns
@@ -158,9 +168,7 @@ def _with_same_answer_column(columns: dict, id_name, spec, items, rows: np.ndarr
     turned = np.array([x in spec.reverse_keyed for x in items], dtype=bool)
     if not spec.reversed or not turned.any() or turned.all():
         return columns
-    if id_name == SAME_ANSWER_COLUMN:
-        raise OptionError(f"the id column '{printable(id_name)}' has the name of a column the output holds; "
-                          f"rename that column in the data, or name the rows by another column")
+    _refuse_id_named_as(id_name, (SAME_ANSWER_COLUMN,))
     found = same_answer_rows(rows, np.arange(len(rows)), turned)
     flags = np.full(n, -1)
     flags[at] = 0
@@ -230,6 +238,16 @@ def _row_reasons(read_index: pd.Index, kept: pd.Index, rows: np.ndarray, group_o
     return reasons
 
 
+def _count_rows_left_out(reasons: pd.Series, chosen, m: int, counts: dict) -> None:
+    """The rows left out before scoring (:data:`_ROWS_LEFT_OUT`; ``reasons``: :func:`_row_reasons`) counted into
+    ``counts`` by (reason, method), every factor's cell empty."""
+    for why in _ROWS_LEFT_OUT:
+        number = sum(1 for r in reasons if r is why)
+        if number:
+            for meth in chosen:
+                counts[(why.reason, meth.value)] = np.full(m, number)
+
+
 def _with_why_not_scored(table: pd.DataFrame, id_name, score_columns: list[str], reasons: pd.Series) -> pd.DataFrame:
     """``table`` (the scores in file order, blank rows of the file as empty lines) with :data:`WHY_NOT_SCORED_COLUMN`
     last when some line has no score at all, saying why (:class:`NotScored`; ``reasons``: :func:`_row_reasons`), so
@@ -238,9 +256,7 @@ def _with_why_not_scored(table: pd.DataFrame, id_name, score_columns: list[str],
     scored = table[score_columns].notna().any(axis=1).to_numpy()
     if scored.all():
         return table
-    if id_name == WHY_NOT_SCORED_COLUMN:
-        raise OptionError(f"the id column '{printable(id_name)}' has the name of a column the output holds; "
-                          f"rename that column in the data, or name the rows by another column")
+    _refuse_id_named_as(id_name, (WHY_NOT_SCORED_COLUMN,))
     known = table.index.isin(reasons.index)
     why = np.full(len(table), None, dtype=object)
     why[known] = reasons.reindex(table.index[known]).to_numpy()
@@ -661,15 +677,8 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     position = pd.Series(np.arange(len(read_index)), index=read_index)
     summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen,
                                   bool(ordinal_items), position.loc[kept].to_numpy(), values, errors, counts)
-    left_out = len(read_index) - len(frame)
-    if left_out:
-        for meth in chosen:
-            counts[(RowLeftOut.FILTERED.value, meth.value)] = np.full(m, left_out)
-    if group is not None:
-        no_group = int(pd.isna(group_of_row).sum())
-        if no_group:
-            for meth in chosen:
-                counts[(RowLeftOut.NO_GROUP.value, meth.value)] = np.full(m, no_group)
+    reasons = _row_reasons(read_index, kept, rows, group_of_row, group, labels)
+    _count_rows_left_out(reasons, chosen, m, counts)
 
     answered = _items_answered(models[0].base if ordinal_items else models[0], rows,
                                position.loc[kept].to_numpy(), len(read_index))
@@ -678,10 +687,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     columns = _with_same_answer_column(columns, id_name, spec, items, rows, position.loc[kept].to_numpy(),
                                        len(read_index))
     table = _in_file_order(pd.DataFrame(columns, index=read_index), data)  # a data frame's own index: scores join
-    table = _with_why_not_scored(table, id_name, score_columns(chosen, factors),
-                                 _row_reasons(read_index, kept, rows, group_of_row, group, labels))
-    if id_name is not None and id_name in list(table.columns)[1:]:
-        raise OptionError(f"the id column '{printable(id_name)}' has the name of a score column; rename it")
+    table = _with_why_not_scored(table, id_name, score_columns(chosen, factors), reasons)
     quality = _ordinal_quality(models, labels, values[chosen[0]], errors[chosen[0]], position, kept, group_of_row, group,
                                spec, answered) if ordinal_items else _linear_quality(models, spec)
     result = _with_repeated_ids(result, ids, id_column)
@@ -912,13 +918,8 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     counts: dict = {}
     summaries = _score_each_group(models, labels, spec, result, rule, rows, group_of_row, group, chosen, ordinal,
                                   position.loc[frame.index].to_numpy(), values, errors, counts)
-    for reason, number in ((RowLeftOut.FILTERED.value, n - len(frame)),
-                           (RowLeftOut.NO_GROUP.value, int(pd.isna(group_of_row).sum()) if group is not None else 0),
-                           (RowLeftOut.UNKNOWN_GROUP.value, int(sum(1 for v in group_of_row if not pd.isna(v)
-                                                                    and v not in labels)) if group is not None else 0)):
-        if number:
-            for meth in chosen:
-                counts[(reason, meth.value)] = np.full(m, number)
+    reasons = _row_reasons(read_frame.index, frame.index, rows, group_of_row, group, labels)
+    _count_rows_left_out(reasons, chosen, m, counts)
     factors = base.factors
     with_errors = bool(standard_errors or ordinal)  # a posterior mean always comes with its posterior SD
     answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
@@ -959,8 +960,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
                         f"{result.data.source}; the quality figures are those of that fit.")
     unscored = tuple((reason, meth, tuple(int(v) for v in c)) for (reason, meth), c in counts.items())
     table = _with_why_not_scored(_in_file_order(pd.DataFrame(columns, index=read_frame.index), data), id_name,
-                                 score_columns(chosen, factors),
-                                 _row_reasons(read_frame.index, frame.index, rows, group_of_row, group, labels))
+                                 score_columns(chosen, factors), reasons)
     return ScoreResult(result, chosen, tuple(factors), id_name, table, tuple(quality),
                        unscored, with_errors, tuple(notes), source, tuple(warnings), summaries)
 

@@ -154,6 +154,12 @@ def test_rows_without_any_score_say_why_and_are_not_counted_as_scored(tmp_path, 
     assert (f"Scores (regression, item sum) of {scored} of the {len(raw)} rows, one line per row of the data in the "
             f"file's order (the {len(raw) - scored} without any score keep their line with empty cells, the column "
             f"why_not_scored saying why: filtered out {int((~kept).sum())}, no answers 1)") in flat
+    # an id column of that name would be overwritten: the one error of ids named like a column written
+    gaps.rename(columns={"id": "why_not_scored"}).to_csv(tmp_path / "named.csv")
+    code, _, err = _run(["scores", model_file, "--data", tmp_path / "named.csv", "--output", tmp_path / "named_out.csv",
+                         "--id", "why_not_scored", "--keep", "school = Pasteur"], capsys)
+    assert code == 2 and "'why_not_scored' has the name of a column the output holds" in err
+    assert not (tmp_path / "named_out.csv").exists()
     # every row scored: no such column, and the count is of every row
     assert _run(["scores", model_file, "--data", HS_FILE, "--output", tmp_path / "all.csv"], capsys)[0] == 0
     assert "why_not_scored" not in pd.read_csv(tmp_path / "all.csv").columns
