@@ -101,3 +101,17 @@ def test_the_sum_table_and_the_fits_reliability_share_one_omega_formula(hs_data)
     for s in result.quality[0].sums:
         assert s.omega == pytest.approx(_congeneric(result, s.factor, FACTORS[s.factor])[1], rel=1e-8)
         assert s.omega == pytest.approx(fitted[s.factor], rel=1e-12)
+
+
+def test_every_method_counts_the_rows_without_answers_by_one_rule(hs_data):
+    # the count was written three times (factor scores, posterior means, item sums); the expected count here is the
+    # rows blanked by hand
+    from cfa_tool.scoring.methods import Unscored, rows_without_answers
+
+    blank = hs_data.copy()
+    blank.loc[blank.index[[4, 9]], [f"x{i}" for i in range(1, 10)]] = np.nan
+    result = cfa_tool.scores(THREE_FACTORS, blank, methods=["regression", "bartlett", "item-sum"])
+    found = {m: c for r, m, c in result.unscored if r == Unscored.NO_ANSWERS.value}
+    assert found == {"regression": (2, 2, 2), "bartlett": (2, 2, 2), "item-sum": (2, 2, 2)}
+    assert rows_without_answers(np.array([True, False, True, False]), 3)[Unscored.NO_ANSWERS].tolist() == [2, 2, 2]
+    assert rows_without_answers(np.ones(4, dtype=bool), 3) == {}
