@@ -202,7 +202,8 @@ def item_sum_precision_table(result, k: int) -> ReportTable | None:
     sums = _item_sums_of(result, q)
     if sums is None or not sums.precision:
         return None
-    both = len({p.method for p in sums.precision}) > 1
+    kinds = {p.method for p in sums.precision}
+    both, mean_only = len(kinds) > 1, kinds == {ScoreMethod.ITEM_MEAN}
     count = dict(zip(sums.factors, (len(items) for items in sums.items)))
     rows, values = [], []
     for p in sums.precision:
@@ -214,13 +215,20 @@ def item_sum_precision_table(result, k: int) -> ReportTable | None:
     cols = [("Factor", "l")] + ([("Score", "l")] if both else []) + [
         ("Items", "r"), ("ω", "r"), ("SD", "r"), ("SEM", "r"), ("95% band", "r"), ("Real difference", "r")]
     ordinal = not hasattr(q, "methods")
-    what = " of the answers' codes" if ordinal else ""
-    spread = ("from the fitted thresholds, loadings and factor variance (Green & Yang 2009)" if ordinal else
+    codes = " of the answers' codes" if ordinal else ""
+    spread = ("from the fitted thresholds, loadings and factor variance, Green & Yang 2009" if ordinal else
               "√(k'Σk) for the keys k and the fitted covariance matrix Σ")
-    written = word_list(METHOD_LABELS[m] for m in ITEM_METHODS if m in result.methods)
-    note = (f"For the {written} of rows that answered every item of the factor, in the score's own units (an item "
-            f"sum's are those of the keyed sum{what}, an item mean's those of the answer scale: the sum's divided by "
-            f"the number of items). SD: the keyed sum's standard deviation under the fitted model ({spread}); ω: its "
+    if mean_only:
+        units, sd = ("in the units of the answer scale (the keyed sum's figures divided by the number of items)",
+                     f"the item mean's standard deviation under the fitted model ({spread}, divided by the number "
+                     f"of items)")
+    else:
+        units = (f"in the units of the keyed sum{codes}" if not both else
+                 f"in each score's own units (an item sum's those of the keyed sum{codes}, an item mean's those of "
+                 f"the answer scale: the sum's divided by the number of items)")
+        sd = f"the keyed sum's standard deviation under the fitted model ({spread})"
+    written = word_list(METHOD_LABELS[m] for m in ITEM_METHODS if m in kinds)
+    note = (f"For the {written} of rows that answered every item of the factor, {units}. SD: {sd}; ω: its "
             f"reliability, as in the quality table; SEM: the standard error of measurement, SD × √(1 − ω) (Lord & "
             f"Novick 1968), the typical distance of a person's score from their true score; 95% band: ±1.96 SEM "
             f"about a score (normal approximation); real difference: the smallest difference between two people's "
