@@ -30,7 +30,7 @@ import numpy as np
 from scipy.special import log_ndtr
 
 from cfa_tool.errors import EstimationError
-from cfa_tool.scoring.methods import ScoreMethod, Unscored, rows_without_answers
+from cfa_tool.scoring.methods import ScoreMethod, rows_without_answers
 from cfa_tool.scoring.model import OrdinalScoringModel
 from cfa_tool.scoring.quadrature import Rule, default_rule
 

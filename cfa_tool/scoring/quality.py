@@ -210,12 +210,17 @@ def sum_keys(model: ScoringModel, declared: Collection[str] | None = None) -> np
     return item_keys(np.where(G != 0, G, L), model.reach, model.items, declared)[0]
 
 
+def _keyed_variances(sigma: np.ndarray, keys: np.ndarray) -> np.ndarray:
+    """k'Sigma k of each column of keys (p, m): the variance of each factor's keyed sum under the model."""
+    return np.einsum("ij,ij->j", keys, sigma @ keys)
+
+
 def sum_quality(model: ScoringModel, declared: Collection[str] | None = None) -> tuple[SumScore, ...]:
     """Omega (McDonald 1999) and validity of each factor's keyed sum (keys: :func:`sum_keys`)."""
     sigma = checked_covariance(model)
     keys = sum_keys(model, declared)
     G, phi, C = model.total_loadings, model.factor_covariance, model.item_factor_covariance
-    variances = np.einsum("ij,ij->j", keys, sigma @ keys)  # k'Sigma k of each factor's keyed sum
+    variances = _keyed_variances(sigma, keys)
     with np.errstate(invalid="ignore", divide="ignore"):
         omegas = keyed_omega(keys, G, np.diag(phi), variances)  # the fit's reliability's formula
     out = []
@@ -246,8 +251,7 @@ def keyed_sum_sds(model: ScoringModel | OrdinalScoringModel, keys: np.ndarray) -
     no items, or its sum takes in a continuous item beside ordinal ones (:func:`ordinal_sum_quality`)."""
     keys = np.asarray(keys, dtype=float)
     if isinstance(model, ScoringModel):
-        sigma = checked_covariance(model)
-        variances = np.einsum("ij,ij->j", keys, sigma @ keys)
+        variances = _keyed_variances(checked_covariance(model), keys)
         return np.where((keys != 0).any(axis=0), np.sqrt(np.clip(variances, 0.0, None)), np.nan)
     base = model.base
     sigma = checked_covariance(base)
