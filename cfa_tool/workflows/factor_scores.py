@@ -185,8 +185,10 @@ def answered_column(factor: str) -> str:
 def _items_answered(model, rows: np.ndarray, at: np.ndarray, n: int) -> np.ndarray:
     """(n, m): how many of each factor's items (directly or through the factors below it) each row answered, at
     the rows' places ``at`` among the ``n`` rows read; NaN for rows not scored (left out by a filter)."""
+    from cfa_tool.scoring.model import items_answered
+
     out = np.full((n, model.m), np.nan)
-    out[at] = (~np.isnan(rows)).astype(float) @ model.reach.astype(float)
+    out[at] = items_answered(model, rows)
     return out
 
 
@@ -696,7 +698,7 @@ def scores(model, data, *, methods=None, standard_errors: bool = False, id_colum
     if ids is not None and id_column is None:
         extra.insert(0, f"The first column holds the row names of {source} (its first column, which has no name in "
                         f"the header); give {Option.ID_COLUMN.given('COLUMN')} to name the rows by another column.")
-    own = _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal_items)
+    own = _without_own_answers_note(answered, values, chosen, factors)
     unweighted = len(frame) - len(fitted_rows)  # weight 0: not in the fit, yet scored like every row
     if unweighted:
         which = "The row of weight 0 is" if unweighted == 1 else f"The {unweighted} rows of weight 0 are"
@@ -925,8 +927,7 @@ def _score_other_data(result, spec, models, labels, data, chosen, standard_error
     answered = _items_answered(base, rows, position.loc[frame.index].to_numpy(), n)
     id_name, columns = _score_columns(ids, id_column, chosen, factors, values, errors, with_errors, answered)
     columns = _with_same_answer_column(columns, id_name, spec, base.items, rows, position.loc[frame.index].to_numpy(), n)
-    warnings = centred_in_each_group(result.estimates) + _without_own_answers_note(models, labels, rows, group_of_row,
-                                                                                  group, factors, ordinal)
+    warnings = centred_in_each_group(result.estimates) + _without_own_answers_note(answered, values, chosen, factors)
     from cfa_tool.assessment.admissibility import Problem, ProblemKind
 
     scored_problems = []  # first in every view, before the fit's own (the rows scored are this run's data)
@@ -1530,15 +1531,15 @@ def centred_in_each_group(estimates) -> list[str]:
             f"that group's own units."]
 
 
-def _without_own_answers_note(models, labels, rows, group_of_row, group, factors, ordinal) -> list[str]:
-    from cfa_tool.scoring.model import without_own_answers
-
-    total = np.zeros(len(factors), dtype=np.int64)
-    for model_g, label in zip(models, labels):
-        sel = np.flatnonzero(group_of_row == label) if group is not None else np.arange(len(rows))
-        part = rows[sel]
-        answered = ~np.isnan(part).all(axis=1)
-        total += without_own_answers(model_g.base if ordinal else model_g, part[answered]).sum(axis=0)
+def _without_own_answers_note(answered: np.ndarray, values: dict, chosen, factors) -> list[str]:
+    """The caution on rows that answered none of a factor's items and still have a factor score of it (``answered``:
+    :func:`_items_answered`; ``values``: each method's scores at the same places): it rests on the other factors'
+    items alone.  Item sums and means leave such cells empty, and Bartlett and correlation-preserving scores as a
+    rule too (the unscored table counts them), so only the cells a factor-score method filled are counted."""
+    scored = np.zeros(answered.shape, dtype=bool)
+    for meth in factor_methods(chosen):
+        scored |= ~np.isnan(values[meth])
+    total = ((answered == 0) & scored).sum(axis=0)
     return [f"{int(n)} {'row' if n == 1 else 'rows'} answered none of the items of {name}; {'its' if n == 1 else 'their'} "
             f"score of {name} rests on the other factors' items alone (through the factors' correlations), and the "
             f"column {answered_column(name)} marks {'it' if n == 1 else 'them'} with 0"

@@ -115,3 +115,18 @@ def test_every_method_counts_the_rows_without_answers_by_one_rule(hs_data):
     assert found == {"regression": (2, 2, 2), "bartlett": (2, 2, 2), "item-sum": (2, 2, 2)}
     assert rows_without_answers(np.array([True, False, True, False]), 3)[Unscored.NO_ANSWERS].tolist() == [2, 2, 2]
     assert rows_without_answers(np.ones(4, dtype=bool), 3) == {}
+
+
+@pytest.mark.parametrize("methods, said", [("regression", True), ("item-sum", False), ("bartlett", False)])
+def test_the_caution_on_scores_without_the_factors_own_items_is_for_cells_scored(hs_data, methods, said):
+    # s13: with item sums alone, a row that answered none of visual's items was said to have a visual score resting
+    # on the other factors' items, while its item sum was empty; Bartlett scores leave that cell empty too
+    blank = hs_data.copy()
+    blank.loc[blank.index[7], ["x1", "x2", "x3"]] = np.nan
+    result = cfa_tool.scores(THREE_FACTORS, blank, methods=methods)
+    column = result.table[f"visual_{methods.replace('-', '_')}"]
+    assert np.isnan(column.iloc[7]) is not said  # the cell, scored or empty
+    caution = [w for w in result.warnings if "answered none of the items of visual" in w]
+    assert caution == ([
+        "1 row answered none of the items of visual; its score of visual rests on the other factors' items alone "
+        "(through the factors' correlations), and the column visual_items_answered marks it with 0"] if said else [])
